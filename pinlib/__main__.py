@@ -1,0 +1,5 @@
+import sys
+
+from pinlib.cli import main
+
+sys.exit(main())

@@ -1,0 +1,73 @@
+"""The ``pinlib`` command: parses arguments, calls the layers below, prints.
+
+Each subcommand lives in ``pinlib/commands/<name>.py`` with two functions:
+``add_parser(subparsers)`` and ``run(args) -> int`` (the exit code).  A
+:class:`~pinlib.errors.PinlibError` anywhere below becomes one clear message on
+standard error and exit code 2 — never a traceback.
+"""
+
+from __future__ import annotations
+
+import argparse
+import importlib
+import sys
+
+from pinlib import __version__
+from pinlib.errors import PinlibError
+
+__all__ = ["main", "COMMANDS"]
+
+#: Subcommand modules under pinlib.commands, in the order --help lists them.
+COMMANDS = ["check", "report", "swap", "candidates", "parts"]
+
+EPILOG = """\
+examples:
+  pinlib check workbooks/designs/demo-board.toml
+  pinlib parts list --function i2c-sda
+  pinlib parts show eeprom-i2c
+
+Results are estimates for design review: confirm them by measurement or simulation on
+the real board. Standards, local codes and licensed practice prevail.
+"""
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="pinlib",
+        description="Pin characteristics library and bus budgets for I2C, SMBus, SPI and GPIO.",
+        epilog=EPILOG,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    parser.add_argument("--version", action="version", version=f"pinlib {__version__}")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+    for name in COMMANDS:
+        try:
+            module = importlib.import_module(f"pinlib.commands.{name}")
+        except ModuleNotFoundError as exc:
+            if exc.name != f"pinlib.commands.{name}":
+                raise
+            continue  # a command not built yet
+        module.add_parser(sub)
+    return parser
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if not getattr(args, "run", None):
+        parser.print_help()
+        return 2
+    try:
+        return int(args.run(args) or 0)
+    except PinlibError as err:
+        print(f"pinlib: error: {err.message}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        print("pinlib: interrupted", file=sys.stderr)
+        return 130
+    except BrokenPipeError:
+        return 0
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

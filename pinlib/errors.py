@@ -1,0 +1,140 @@
+"""Exceptions and warnings that pinlib raises.
+
+Every error a user can meet is a :class:`PinlibError`.  Each also subclasses the
+built-in exception that fits it (``ValueError`` for bad input, ``OSError`` for a file
+that cannot be written), so callers that know nothing of pinlib still catch it.
+
+Errors carry structured fields (``file``, ``line``, ``field``, ``value``,
+``expected``) and build their message from them, so the command line can print one
+clear line and the workbooks can place the message beside the offending field.
+"""
+
+from __future__ import annotations
+
+__all__ = [
+    "PinlibError",
+    "InputError",
+    "UnitError",
+    "LibraryError",
+    "DesignError",
+    "WriteError",
+    "ValidityWarning",
+    "FitWarning",
+]
+
+
+class PinlibError(Exception):
+    """Base of every error pinlib raises on purpose.
+
+    Parameters
+    ----------
+    problem : str
+        What is wrong, in a few words.
+    file, line, field : optional
+        Where: the file, the 1-based line in it, and the dotted field path.
+    value : optional
+        The offending value as the user wrote it.
+    expected : optional
+        What would have been accepted.
+    hint : optional
+        A suggestion to fix it (a closest match, a unit to add).
+    """
+
+    def __init__(
+        self,
+        problem: str,
+        *,
+        file: str | None = None,
+        line: int | None = None,
+        field: str | None = None,
+        value: object = None,
+        expected: str | None = None,
+        hint: str | None = None,
+    ) -> None:
+        self.problem = problem
+        self.file = str(file) if file is not None else None
+        self.line = line
+        self.field = field
+        self.value = value
+        self.expected = expected
+        self.hint = hint
+        super().__init__(self.message)
+
+    def located(self, *, file=None, line=None, field_prefix=None):
+        """Return the same error with a location filled in where it was missing."""
+        field = self.field
+        if field_prefix:
+            field = f"{field_prefix}.{field}" if field else field_prefix
+        return type(self)(
+            self.problem,
+            file=self.file or file,
+            line=self.line or line,
+            field=field,
+            value=self.value,
+            expected=self.expected,
+            hint=self.hint,
+        )
+
+    @property
+    def where(self) -> str:
+        parts = []
+        if self.file:
+            parts.append(self.file if self.line is None else f"{self.file}:{self.line}")
+        if self.field:
+            parts.append(f"field '{self.field}'")
+        return ", ".join(parts)
+
+    @property
+    def message(self) -> str:
+        text = self.problem
+        if self.value is not None:
+            text += f" (got {self.value!r})"
+        if self.expected:
+            text += f"; expected {self.expected}"
+        if self.hint:
+            text += f"; {self.hint}"
+        where = self.where
+        return f"{where}: {text}" if where else text
+
+    def __str__(self) -> str:
+        return self.message
+
+    def to_dict(self) -> dict:
+        return {
+            "problem": self.problem,
+            "file": self.file,
+            "line": self.line,
+            "field": self.field,
+            "value": None if self.value is None else str(self.value),
+            "expected": self.expected,
+            "hint": self.hint,
+            "message": self.message,
+        }
+
+
+class InputError(PinlibError, ValueError):
+    """A value, file or argument that pinlib cannot accept."""
+
+
+class UnitError(InputError):
+    """A quantity with the wrong unit, no unit, or a value that does not parse."""
+
+
+class LibraryError(InputError):
+    """A part-class file or library folder that is not valid."""
+
+
+class DesignError(InputError):
+    """A design file that is not valid or refers to what does not exist."""
+
+
+class WriteError(PinlibError, OSError):
+    """A file could not be written; the old file is left whole."""
+
+
+class ValidityWarning(UserWarning):
+    """An input lies outside the range in which a published model is valid."""
+
+
+class FitWarning(UserWarning):
+    """Datasheet points that a model cannot fit consistently."""

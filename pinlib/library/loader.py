@@ -1,0 +1,349 @@
+"""Loading part classes: the built-in ``devices/`` folder merged with team folders.
+
+Order of precedence, lowest first: the built-in library, then the folders of the
+``PINLIB_LIBRARY`` environment variable (``os.pathsep``-separated), then folders a
+design names in ``library``, then ``--library`` folders from the command line.  A team
+part with the id of a built-in part overrides it (the listing says so); two team parts
+with one id is an error naming both files.
+
+``extends`` is resolved by merging the parent's raw table under the child's: tables
+merge key by key (so a child may change one pin field), arrays and values replace.
+Every merged value remembers which part id set it.
+"""
+
+from __future__ import annotations
+
+import difflib
+import os
+from collections.abc import Iterable
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from pydantic import ValidationError
+
+from pinlib.errors import LibraryError, PinlibError
+from pinlib.library.schema import FORMAT, Part
+from pinlib.library.values import Sourced
+from pinlib.tomlfile import line_index, line_of, load
+
+__all__ = [
+    "BUILTIN_DIR",
+    "Library",
+    "PartFile",
+    "load_library",
+    "read_part_file",
+    "validate_part",
+    "pydantic_errors",
+    "library_folders",
+]
+
+BUILTIN_DIR = Path(os.environ.get("PINLIB_BUILTIN", Path(__file__).resolve().parents[2] / "devices"))
+
+_NOT_INHERITED = {"id", "extends", "abstract"}
+
+
+@dataclass
+class PartFile:
+    """One part file as read: its raw table, text and line index."""
+
+    path: Path
+    raw: dict
+    text: str
+    builtin: bool
+
+    @property
+    def id(self) -> str:
+        return str(self.raw.get("id", ""))
+
+    def line(self, loc) -> int | None:
+        return line_of(line_index(self.text), loc)
+
+
+def read_part_file(path: Path, *, builtin: bool = False) -> PartFile:
+    """Read one part file, checking the format tag and the id."""
+    raw, text = load(path, error=LibraryError)
+    pf = PartFile(Path(path), raw, text, builtin)
+    fmt = raw.get("format")
+    if fmt != FORMAT:
+        raise LibraryError("not a part-class file", file=str(path), line=pf.line(("format",)),
+                           field="format", value=fmt, expected=f'format = "{FORMAT}"')
+    if not isinstance(raw.get("id"), str) or not raw["id"]:
+        raise LibraryError("a part file needs an id", file=str(path), line=pf.line(("id",)),
+                           field="id", expected="a lowercase id such as \"eeprom-i2c\"")
+    return pf
+
+
+def pydantic_errors(exc: ValidationError, *, file=None, locate=None, cls=LibraryError,
+                    origin_file=None) -> list[PinlibError]:
+    """Turn a pydantic ValidationError into pinlib errors naming file, line and field."""
+    out: list[PinlibError] = []
+    for err in exc.errors(include_url=False):
+        loc = tuple(err.get("loc", ()))
+        dotted = ".".join(str(p) for p in loc)
+        where = origin_file(loc) if origin_file else file
+        line = locate(where, loc) if locate else None
+        inner = (err.get("ctx") or {}).get("error")
+        if isinstance(inner, PinlibError):
+            out.append(cls(inner.problem, file=where, line=line, field=dotted or inner.field,
+                           value=inner.value, expected=inner.expected, hint=inner.hint))
+            continue
+        kind = err.get("type", "")
+        if kind == "extra_forbidden":
+            problem, expected = "unknown field", "a field of the part format (see 'pinlib parts schema')"
+        elif kind == "missing":
+            problem, expected = "a required field is missing", None
+        elif kind == "literal_error":
+            problem = "not one of the allowed values"
+            expected = err.get("ctx", {}).get("expected")
+        else:
+            problem, expected = err.get("msg", "invalid").removeprefix("Value error, "), None
+        value = err.get("input") if kind not in ("missing",) else None
+        if isinstance(value, dict):
+            value = None
+        out.append(cls(problem, file=where, line=line, field=dotted, value=value,
+                       expected=expected))
+    return out
+
+
+def _merge(parent: dict, child: dict, parent_origin: dict, child_id: str, prefix=()) -> tuple:
+    """Deep-merge ``child`` over ``parent``; return (merged, origin map)."""
+    merged = dict(parent)
+    origin = {k: v for k, v in parent_origin.items()}
+    for key, value in child.items():
+        path = prefix + (key,)
+        if not prefix and key in _NOT_INHERITED:
+            merged[key] = value
+            continue
+        if isinstance(value, dict) and isinstance(merged.get(key), dict) and not _is_value_table(value):
+            sub, sub_origin = _merge(merged[key], value, {k[len(path):]: v for k, v in origin.items()
+                                                          if k[: len(path)] == path}, child_id)
+            merged[key] = sub
+            origin = {k: v for k, v in origin.items() if k[: len(path)] != path}
+            origin.update({path + k: v for k, v in sub_origin.items()})
+        else:
+            merged[key] = value
+            origin = {k: v for k, v in origin.items() if k[: len(path)] != path}
+            origin[path] = child_id
+    for key in _NOT_INHERITED:
+        if not prefix and key not in child:
+            merged.pop(key, None)
+    return merged, origin
+
+
+def _is_value_table(d: dict) -> bool:
+    return "value" in d and set(d) <= {"value", "basis", "source", "typ"}
+
+
+def _origin_of(origin: dict, loc: tuple) -> str | None:
+    loc = tuple(loc)
+    while loc:
+        if loc in origin:
+            return origin[loc]
+        loc = loc[:-1]
+    return None
+
+
+def validate_part(merged: dict, origin: dict, files: dict[str, PartFile]) -> Part:
+    """Validate a merged raw table; errors point at the file that set the bad value."""
+    own = merged.get("id")
+    try:
+        part = Part.model_validate(merged)
+    except ValidationError as exc:
+        def origin_file(loc):
+            pid = _origin_of(origin, loc) or own
+            return str(files[pid].path) if pid in files else None
+
+        def locate(fname, loc):
+            for pf in files.values():
+                if str(pf.path) == fname:
+                    return pf.line(loc)
+            return None
+
+        raise _Many(pydantic_errors(exc, origin_file=origin_file, locate=locate)) from None
+    return _with_origins(part, origin, own)
+
+
+def _with_origins(part: Part, origin: dict, own: str) -> Part:
+    """Stamp every Sourced value with the part id whose file set it."""
+
+    def walk(obj, path):
+        if isinstance(obj, Sourced):
+            return obj.with_origin(_origin_of(origin, path) or own)
+        if isinstance(obj, dict):
+            return {k: walk(v, path + (k,)) for k, v in obj.items()}
+        if isinstance(obj, tuple):
+            return tuple(walk(v, path + (i,)) for i, v in enumerate(obj))
+        if hasattr(obj, "model_fields"):
+            changes = {name: walk(getattr(obj, name), path + (name,))
+                       for name in type(obj).model_fields}
+            return obj.model_copy(update=changes)
+        return obj
+
+    return walk(part, ())
+
+
+class _Many(Exception):
+    def __init__(self, errors):
+        self.errors = errors
+        super().__init__("; ".join(e.message for e in errors))
+
+
+@dataclass
+class Library:
+    """The merged library: validated parts by id, where each came from, and any problems."""
+
+    parts: dict[str, Part] = field(default_factory=dict)
+    files: dict[str, PartFile] = field(default_factory=dict)
+    overrides: dict[str, Path] = field(default_factory=dict)  # id -> built-in file overridden
+    problems: list[PinlibError] = field(default_factory=list)
+    folders: list[Path] = field(default_factory=list)
+
+    def __contains__(self, part_id: str) -> bool:
+        return part_id in self.parts
+
+    def __len__(self) -> int:
+        return len(self.parts)
+
+    def closest(self, part_id: str, n: int = 3) -> list[str]:
+        return difflib.get_close_matches(part_id, list(self.parts), n=n, cutoff=0.4)
+
+    def get(self, part_id: str, *, file=None, line=None, field=None) -> Part:
+        """The part with this id; an unknown id is an error naming the closest ids."""
+        if part_id in self.parts:
+            return self.parts[part_id]
+        broken = [p for p in self.problems if p.file and part_id in Path(p.file).stem]
+        near = self.closest(part_id)
+        hint = ("closest in the library: " + ", ".join(near)) if near else \
+            "'pinlib parts list' shows the library"
+        if broken:
+            hint = f"its file has errors: {broken[0].message}"
+        raise LibraryError("unknown part", file=file, line=line, field=field, value=part_id,
+                           hint=hint)
+
+    def path_of(self, part_id: str) -> Path:
+        return self.files[part_id].path
+
+    def chain(self, part_id: str) -> list[str]:
+        """The part and its ancestors, child first."""
+        out = [part_id]
+        while True:
+            parent = self.files[out[-1]].raw.get("extends")
+            if not parent or parent in out or parent not in self.files:
+                return out
+            out.append(parent)
+
+    def placeable(self) -> dict[str, Part]:
+        """Parts that can stand on a board (not abstract classes)."""
+        return {k: p for k, p in self.parts.items() if not p.abstract}
+
+
+def library_folders(extra: Iterable[str | os.PathLike] = (), *, env: bool = True) -> list[Path]:
+    """Team folders in precedence order: PINLIB_LIBRARY, then ``extra``."""
+    folders: list[Path] = []
+    if env and os.environ.get("PINLIB_LIBRARY"):
+        folders += [Path(p) for p in os.environ["PINLIB_LIBRARY"].split(os.pathsep) if p]
+    folders += [Path(p) for p in extra]
+    return folders
+
+
+def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = True,
+                 env: bool = True, strict: bool = False) -> Library:
+    """Load and merge the library.
+
+    Parameters
+    ----------
+    folders : iterable of paths
+        Team library folders, lowest precedence first (after ``PINLIB_LIBRARY``).
+    builtin : bool
+        Include the built-in ``devices/`` folder.
+    env : bool
+        Read ``PINLIB_LIBRARY``.
+    strict : bool
+        Raise the first problem instead of collecting it in ``Library.problems``
+        (parts with problems are left out of the library either way).
+    """
+    lib = Library()
+    found: dict[str, PartFile] = {}
+    team_seen: dict[str, Path] = {}
+    sources = ([(BUILTIN_DIR, True)] if builtin else []) + [
+        (Path(f), False) for f in library_folders(folders, env=env)]
+    for folder, is_builtin in sources:
+        if not folder.is_dir():
+            err = LibraryError("library folder not found", file=str(folder))
+            if strict:
+                raise err
+            lib.problems.append(err)
+            continue
+        lib.folders.append(folder)
+        for path in sorted(folder.rglob("*.toml")):
+            try:
+                pf = read_part_file(path, builtin=is_builtin)
+            except LibraryError as err:
+                if strict:
+                    raise
+                lib.problems.append(err)
+                continue
+            pid = pf.id
+            if not is_builtin and pid in team_seen and team_seen[pid] != path:
+                err = LibraryError("two team parts share one id", file=str(path),
+                                   line=pf.line(("id",)), field="id", value=pid,
+                                   hint=f"the other is {team_seen[pid]}")
+                if strict:
+                    raise err
+                lib.problems.append(err)
+                continue
+            if pid in found and found[pid].builtin and is_builtin:
+                err = LibraryError("two built-in parts share one id", file=str(path),
+                                   field="id", value=pid, hint=f"the other is {found[pid].path}")
+                lib.problems.append(err)
+                continue
+            if pid in found and found[pid].builtin and not is_builtin:
+                lib.overrides[pid] = found[pid].path
+            if not is_builtin:
+                team_seen[pid] = path
+            found[pid] = pf
+    lib.files = found
+    for pid in found:
+        try:
+            lib.parts[pid] = _resolve(pid, found, {})
+        except _Many as many:
+            if strict:
+                raise many.errors[0] from None
+            lib.problems.extend(many.errors)
+        except LibraryError as err:
+            if strict:
+                raise
+            lib.problems.append(err)
+    return lib
+
+
+def _resolve(pid: str, files: dict[str, PartFile], cache: dict) -> Part:
+    merged, origin, used = _merged_raw(pid, files, [])
+    return validate_part(merged, origin, {k: files[k] for k in used})
+
+
+def _merged_raw(pid: str, files: dict[str, PartFile], stack: list[str]):
+    pf = files[pid]
+    parent = pf.raw.get("extends")
+    own_origin = {(k,): pid for k in pf.raw}
+    if parent is None:
+        merged, origin = _merge({}, pf.raw, {}, pid)
+        return merged, origin, [pid]
+    if not isinstance(parent, str):
+        raise LibraryError("extends names a part id", file=str(pf.path),
+                           line=pf.line(("extends",)), field="extends", value=parent)
+    if parent in stack + [pid]:
+        cycle = " -> ".join(stack + [pid, parent])
+        raise LibraryError("an extends cycle", file=str(pf.path), line=pf.line(("extends",)),
+                           field="extends", value=parent,
+                           hint=f"{cycle}; files: " + ", ".join(
+                               str(files[p].path) for p in stack + [pid] if p in files))
+    if parent not in files:
+        near = difflib.get_close_matches(parent, list(files), n=3, cutoff=0.4)
+        raise LibraryError("extends a part that is not in the library", file=str(pf.path),
+                           line=pf.line(("extends",)), field="extends", value=parent,
+                           hint=("closest: " + ", ".join(near)) if near else None)
+    base, base_origin, used = _merged_raw(parent, files, stack + [pid])
+    merged, origin = _merge(base, pf.raw, base_origin, pid)
+    del own_origin
+    return merged, origin, used + [pid]

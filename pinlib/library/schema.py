@@ -1,0 +1,242 @@
+"""The part-class format, ``format = "pinlib.part/1"``, as pydantic models.
+
+Every dimensional field is a :class:`~pinlib.library.values.Sourced` value: a string
+with its unit or a provenance table.  Each stored value is the guaranteed limit in the
+direction that hurts the design (max capacitance and leakage, max VIL, min VIH, max
+VOL at the stated current, max output delay, min setup and hold); ``typ`` rides beside
+it for information.  Misspelt keys are errors (``extra="forbid"``).
+
+The glossary of field names (used throughout pinlib):
+
+========== ======================================================== =====
+name       meaning                                                  unit
+========== ======================================================== =====
+c_in       pin capacitance (input, or I/O in any state), max        F
+leakage    input leakage current, max                               A
+v_il       input low threshold, max (highest level read as low)     V
+v_ih       input high threshold, min (lowest level read as high)    V
+v_ol       output low level, max, at i_ol                           V
+i_ol       sink current at which v_ol is guaranteed                 A
+v_oh       output high level, min, at i_oh                          V
+i_oh       source current at which v_oh is guaranteed               A
+r_out      output resistance of a push-pull driver                  Ω
+abs_max    absolute maximum input voltage                           V
+pullup     a pull-up resistor the part carries on this pin          Ω
+t_valid    clock edge to output valid, max (SPI)                    s
+t_setup    input setup time before the sampling edge, min           s
+t_hold     input hold time after the sampling edge, min             s
+t_pd       propagation delay through a bridging part, max           s
+========== ======================================================== =====
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+from typing import Annotated, Literal
+
+from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, field_validator
+
+from pinlib.library.values import Sourced, sourced_parser, threshold_parser
+
+__all__ = [
+    "FORMAT",
+    "CATEGORIES",
+    "FUNCTIONS",
+    "DRIVES",
+    "Edge",
+    "Pin",
+    "Timing",
+    "Supply",
+    "Provenance",
+    "LinePerLength",
+    "Bridge",
+    "Side",
+    "Part",
+]
+
+FORMAT = "pinlib.part/1"
+
+CATEGORIES = (
+    "controller", "sensor", "memory", "io-expander", "clock", "converter", "display",
+    "buffer", "translator", "logic", "connector", "cable", "module", "isolator",
+    "power", "network", "driver",
+)
+FUNCTIONS = ("i2c-sda", "i2c-scl", "spi-sclk", "spi-copi", "spi-cipo", "spi-cs", "gpio")
+DRIVES = ("open-drain", "push-pull", "input")
+
+
+def _q(unit, lo=None, hi=None, signed=False):
+    return Annotated[Sourced, BeforeValidator(sourced_parser(unit, lo, hi, signed=signed))]
+
+
+# Plausible ranges: wide enough for any real pin, narrow enough to catch a lost prefix.
+Capacitance = _q("F", 0.0, 100e-9)
+Current = _q("A", 0.0, 10.0)
+Voltage = _q("V", -50.0, 50.0, signed=True)
+Resistance = _q("Ω", 0.0, 100e6)
+Time = _q("s", 0.0, 10.0)
+Frequency = _q("Hz", 0.0, 100e9)
+CapPerLength = _q("F/m", 0.0, 1e-6)
+DelayPerLength = _q("s/m", 1e-9, 1e-6)
+Level = Annotated[Sourced, BeforeValidator(threshold_parser())]
+
+
+class _Model(BaseModel):
+    model_config = ConfigDict(extra="forbid", frozen=True, arbitrary_types_allowed=True)
+
+
+class Edge(_Model):
+    """One datasheet edge-time point: rise and fall into a stated load."""
+
+    load: Capacitance
+    rise: Time | None = None
+    fall: Time | None = None
+    levels: Literal["10-90", "20-80"] = "10-90"
+    vdd: Voltage | None = None  # the supply the point was stated at, when it matters
+
+    @field_validator("fall")
+    @classmethod
+    def _one_edge(cls, v, info):
+        if v is None and info.data.get("rise") is None:
+            raise ValueError("an edge point needs rise or fall (or both)")
+        return v
+
+
+class Pin(_Model):
+    """One pin of a part class."""
+
+    function: Literal[FUNCTIONS]  # type: ignore[valid-type]
+    drive: Literal[DRIVES] = "input"  # type: ignore[valid-type]
+    c_in: Capacitance | None = None
+    leakage: Current | None = None
+    v_il: Level | None = None
+    v_ih: Level | None = None
+    hysteresis: Level | None = None
+    v_ol: Level | None = None
+    i_ol: Current | None = None
+    v_oh: Level | None = None
+    i_oh: Current | None = None
+    r_out: Resistance | None = None
+    edges: tuple[Edge, ...] = ()
+    abs_max: Level | None = None
+    pullup: Resistance | None = None
+    pullup_internal: Resistance | None = None  # present only when the design enables it
+    off_tolerant: bool = False
+    t_of_min: Time | None = None  # output fall time of a slope-controlled open-drain stage
+    t_of_max: Time | None = None
+    description: str | None = None
+
+
+class Timing(_Model):
+    """Protocol timing of a part (limits in the direction that hurts)."""
+
+    f_max: Frequency | None = None
+    # I2C / SMBus
+    t_vd_dat: Time | None = None
+    t_vd_ack: Time | None = None
+    t_su_dat: Time | None = None
+    t_hd_dat: Time | None = None
+    t_low: Time | None = None
+    t_high: Time | None = None
+    # SPI
+    t_valid: Time | None = None
+    t_setup: Time | None = None
+    t_hold: Time | None = None
+    t_cs_setup: Time | None = None
+    t_cs_hold: Time | None = None
+    test_load: Capacitance | None = None
+    # bridging parts, isolators, buffers
+    t_pd: Time | None = None
+
+
+class Supply(_Model):
+    min: Voltage
+    max: Voltage
+    typ: Voltage | None = None
+
+    @field_validator("max")
+    @classmethod
+    def _ordered(cls, v, info):
+        lo = info.data.get("min")
+        if lo is not None and v.value < lo.value:
+            raise ValueError(f"supply max {v.text} is below min {lo.text}")
+        return v
+
+
+class Provenance(_Model):
+    basis: Literal["generic", "datasheet", "measured", "estimate"] = "generic"
+    source: str = ""
+    recorded: _dt.date | None = None
+    by: str | None = None
+
+
+class LinePerLength(_Model):
+    """A cable or interconnect class, per length: capacitance (per conductor to its
+    return), delay, and impedance when known."""
+
+    capacitance: CapPerLength
+    delay: DelayPerLength | None = None
+    impedance: Resistance | None = None
+
+
+class Bridge(_Model):
+    """How a bridging part joins its two sides."""
+
+    kind: Literal["repeater", "mosfet", "buffer", "isolator"]
+    r_on: Resistance | None = None     # MOSFET on-resistance
+    v_gs_th: Voltage | None = None     # MOSFET gate threshold, max
+    low_offset_side: Literal["a", "b"] | None = None
+
+
+class Side(_Model):
+    """One side of a bridging part: its supply, pins and any static low-level offset."""
+
+    supply: Supply | None = None
+    pins: dict[str, Pin] = Field(default_factory=dict)
+    low_offset: Voltage | None = None  # the low level this side drives (static offset), max
+
+
+class Part(_Model):
+    """A part class: the whole file, after ``extends`` has been merged in."""
+
+    format: Literal["pinlib.part/1"]
+    id: Annotated[str, Field(pattern=r"^[a-z0-9][a-z0-9-]*$", max_length=64)]
+    title: str
+    category: Literal[CATEGORIES]  # type: ignore[valid-type]
+    extends: str | None = None
+    abstract: bool = False  # a class meant to be extended, not placed on a board
+    supply: Supply | None = None
+    provenance: Provenance = Provenance()
+    description: str | None = None
+    pins: dict[str, Pin] = Field(default_factory=dict)
+    timing: Timing = Timing()
+    sides: dict[Literal["a", "b"], Side] = Field(default_factory=dict)
+    bridge: Bridge | None = None
+    line: LinePerLength | None = None
+
+    @field_validator("sides")
+    @classmethod
+    def _both_sides(cls, v):
+        if v and set(v) != {"a", "b"}:
+            raise ValueError("a bridging part describes both sides, [sides.a] and [sides.b]")
+        return v
+
+    def functions(self) -> set[str]:
+        """Every pin function the part offers (on either side for a bridge)."""
+        out = {p.function for p in self.pins.values()}
+        for side in self.sides.values():
+            out |= {p.function for p in side.pins.values()}
+        return out
+
+    def pin_for(self, function: str, side: str | None = None) -> tuple[str, Pin] | None:
+        """The (name, pin) serving ``function``, on ``side`` for a bridge; None if absent."""
+        pins = self.sides[side].pins if side else self.pins
+        for name, pin in pins.items():
+            if pin.function == function:
+                return name, pin
+        return None
+
+    def supply_for(self, side: str | None = None) -> Supply | None:
+        if side and side in self.sides and self.sides[side].supply is not None:
+            return self.sides[side].supply
+        return self.supply

@@ -1,0 +1,165 @@
+"""Values that keep where they came from.
+
+A value in a part file is either a plain string with its unit (``"8 pF"``) or a table
+``{ value = "8 pF", basis = "datasheet", source = "rev C, table 7.5", typ = "5 pF" }``.
+Either way it becomes a :class:`Sourced`: the SI value (a float, or a
+:class:`~pinlib.quantity.Threshold` for levels that may follow the supply) with its
+basis, its source, the typical value when one was given, whether pinlib derived it,
+and which part file it was set in (for values inherited through ``extends``).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+from typing import Any
+
+from pinlib.errors import UnitError
+from pinlib.quantity import Threshold, format_si, parse, parse_threshold
+
+__all__ = ["BASES", "Sourced", "sourced_parser", "threshold_parser"]
+
+#: How a value was obtained.
+BASES = ("generic", "datasheet", "measured", "estimate", "derived")
+
+_TABLE_KEYS = {"value", "basis", "source", "typ"}
+
+
+@dataclass(frozen=True)
+class Sourced:
+    """An SI value with its provenance.
+
+    Attributes
+    ----------
+    value : float or Threshold
+        The stored value: the guaranteed limit in the direction that hurts.
+    unit : str
+        Its SI unit (``"F"``, ``"V"``...).
+    text : str
+        What the file said.
+    basis : str or None
+        One of :data:`BASES`; None means "as the part's own provenance".
+    source : str or None
+        Where the number comes from (document, revision, table).
+    typ : float or Threshold or None
+        The typical value, kept for information only.
+    origin : str or None
+        The part id whose file set this value (differs from the part when inherited).
+    """
+
+    value: Any
+    unit: str
+    text: str = ""
+    basis: str | None = None
+    source: str | None = None
+    typ: Any = None
+    origin: str | None = None
+
+    @property
+    def derived(self) -> bool:
+        return self.basis == "derived"
+
+    def at(self, vdd=None):
+        """The value as a number; a threshold is resolved at ``vdd``. [unit]"""
+        if isinstance(self.value, Threshold):
+            if vdd is None:
+                if self.value.relative:
+                    raise ValueError("a supply is needed to resolve a relative threshold")
+                return self.value.offset
+            return self.value.resolve(vdd)
+        return self.value
+
+    def with_origin(self, origin: str) -> Sourced:
+        return self if self.origin else replace(self, origin=origin)
+
+    def describe(self) -> str:
+        """``'8 pF (datasheet: rev C, table 7.5)'``"""
+        shown = str(self.value) if isinstance(self.value, Threshold) else format_si(
+            self.value, self.unit)
+        bits = [b for b in (self.basis, self.source) if b]
+        return f"{shown} ({': '.join(bits)})" if bits else shown
+
+    def to_json(self) -> dict:
+        v = self.value
+        out = {"text": self.text or str(v), "unit": self.unit}
+        if isinstance(v, Threshold):
+            out.update(scale=v.scale, offset=v.offset)
+        else:
+            out["value"] = v
+        for k in ("basis", "source", "origin"):
+            if getattr(self, k):
+                out[k] = getattr(self, k)
+        if self.typ is not None:
+            out["typ"] = str(self.typ) if isinstance(self.typ, Threshold) else self.typ
+        return out
+
+
+def _split_table(raw, field):
+    """Return (text, basis, source, typ_text) from a plain value or a provenance table."""
+    if isinstance(raw, dict):
+        unknown = set(raw) - _TABLE_KEYS
+        if unknown:
+            raise UnitError(f"unknown key '{sorted(unknown)[0]}' in a value table", field=field,
+                            expected="only value, basis, source, typ")
+        if "value" not in raw:
+            raise UnitError("a value table without 'value'", field=field,
+                            expected="{ value = \"...\", basis = \"...\", source = \"...\" }")
+        basis = raw.get("basis")
+        if basis is not None and basis not in BASES[:-1]:
+            raise UnitError("unknown basis", field=f"{field}.basis" if field else "basis",
+                            value=basis, expected="one of " + ", ".join(BASES[:-1]))
+        source = raw.get("source")
+        if source is not None and not isinstance(source, str):
+            raise UnitError("a source must be text", field=f"{field}.source", value=source)
+        return raw["value"], basis, source, raw.get("typ")
+    return raw, None, None, None
+
+
+def sourced_parser(unit: str, lo: float | None = None, hi: float | None = None,
+                   *, signed: bool = False):
+    """A pydantic before-validator: plain value or provenance table -> :class:`Sourced`.
+
+    ``lo``/``hi`` are sane bounds in SI (a bare ``"4k7"`` for a capacitance must not
+    pass as 4.7 kF); values outside them are refused with the range in the message.
+    """
+
+    def check(x, field):
+        if not signed and x < 0:
+            raise UnitError("a negative value", field=field, value=format_si(x, unit),
+                            expected="zero or more")
+        if (lo is not None and x < lo) or (hi is not None and x > hi):
+            raise UnitError("outside the plausible range", field=field, value=format_si(x, unit),
+                            expected=f"between {format_si(lo, unit)} and {format_si(hi, unit)}")
+        return x
+
+    def validate(raw, info=None):
+        if isinstance(raw, Sourced):
+            return raw
+        field = _field_name(info)
+        text, basis, source, typ = _split_table(raw, field)
+        value = check(parse(text, unit, field=field), field)
+        typ_v = None if typ is None else parse(typ, unit, field=f"{field}.typ" if field else None)
+        return Sourced(value, unit, str(text), basis, source, typ_v)
+
+    return validate
+
+
+def threshold_parser(lo: float = -50.0, hi: float = 50.0):
+    """A pydantic before-validator for levels: ``"0.7 VDD"``, ``"VDD - 0.4 V"``, ``"2 V"``."""
+
+    def validate(raw, info=None):
+        if isinstance(raw, Sourced):
+            return raw
+        field = _field_name(info)
+        text, basis, source, typ = _split_table(raw, field)
+        th = parse_threshold(text, field=field)
+        if not (-2.0 <= th.scale <= 2.0 and lo <= th.offset <= hi):
+            raise UnitError("outside the plausible range", field=field, value=text,
+                            expected=f"a scale of VDD within ±2 and an offset within {lo}..{hi} V")
+        typ_v = None if typ is None else parse_threshold(typ, field=f"{field}.typ")
+        return Sourced(th, "V", str(text), basis, source, typ_v)
+
+    return validate
+
+
+def _field_name(info) -> str | None:
+    return getattr(info, "field_name", None) if info is not None else None

@@ -1,0 +1,367 @@
+"""Engineering quantities: parse what engineers write, format SI floats back.
+
+Parsing is strict on purpose.  A value in a part or design file is a string with its
+unit (``"8 pF"``, ``"4.7 kΩ"``, ``"2.2 ns"``); the caller names the unit it expects
+and gets an SI float back, or a :class:`~pinlib.errors.UnitError` that names the
+field, the value and the expected unit.  We parse ourselves rather than hand text to a
+general quantity parser because the general parsers accept too much for a file
+format: ``33R`` as 33 ronna-something, ``4k7`` as 4 with unit ``k7``, ``10 pH`` for a
+capacitance.  Formatting uses quantiphy, which renders SI prefixes well.
+
+Accepted forms
+--------------
+- a number, an optional SI prefix (T G M k K m u µ μ n p f a) and the unit:
+  ``"4.7 kΩ"``, ``"4.7k ohm"``, ``"10pF"``, ``"1e-12 F"``, ``"400 kHz"``, ``"3.3 V"``;
+- the RKM code of schematics, the prefix letter standing for the decimal point:
+  ``"4k7"`` (4.7 kΩ), ``"2R2"`` (2.2 Ω), ``"R47"``, ``"4n7"`` (4.7 nF);
+- percentages ``"5 %"`` (returned as the fraction 0.05);
+- per-length values ``"0.8 pF/cm"``, ``"3.5 pF/in"``, ``"58 ps/cm"``, ``"7 nH/in"``;
+- lengths in metres with prefixes, ``mil`` (thou), ``in``, ``ft``.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass
+from decimal import Decimal
+
+import numpy as np
+
+from pinlib.errors import UnitError
+
+__all__ = [
+    "UNITS",
+    "parse",
+    "parse_ratio",
+    "Threshold",
+    "parse_threshold",
+    "format_si",
+    "unit_name",
+]
+
+# Expected unit -> (name used in messages, example).
+UNITS: dict[str, tuple[str, str]] = {
+    "Ω": ("a resistance", "4.7 kΩ"),
+    "F": ("a capacitance", "8 pF"),
+    "H": ("an inductance", "10 nH"),
+    "s": ("a time", "2.2 ns"),
+    "V": ("a voltage", "3.3 V"),
+    "A": ("a current", "3 mA"),
+    "Hz": ("a frequency", "400 kHz"),
+    "W": ("a power", "10 mW"),
+    "m": ("a length", "14 cm"),
+    "%": ("a percentage", "5 %"),
+    "F/m": ("a capacitance per length", "0.8 pF/cm"),
+    "s/m": ("a delay per length", "58 ps/cm"),
+    "H/m": ("an inductance per length", "3 nH/cm"),
+    "Ω/m": ("a resistance per length", "0.1 Ω/m"),
+}
+
+_PREFIX = {
+    "T": 1e12, "G": 1e9, "M": 1e6, "k": 1e3, "K": 1e3,
+    "m": 1e-3, "u": 1e-6, "µ": 1e-6, "μ": 1e-6,
+    "n": 1e-9, "p": 1e-12, "f": 1e-15, "a": 1e-18,
+}
+
+# Spellings of each base unit.  Keys are matched exactly (case matters: mHz is not MHz).
+_UNIT_ALIAS = {
+    "Ω": "Ω", "Ω": "Ω", "ohm": "Ω", "ohms": "Ω", "Ohm": "Ω", "Ohms": "Ω", "OHM": "Ω", "R": "Ω",
+    "F": "F", "H": "H",
+    "s": "s", "sec": "s",
+    "V": "V", "v": "V",
+    "A": "A",
+    "Hz": "Hz", "hz": "Hz", "HZ": "Hz",
+    "W": "W",
+    "m": "m",
+    "%": "%",
+}
+
+# Non-metric lengths, in metres.
+_LENGTH = {"mil": 25.4e-6, "mils": 25.4e-6, "thou": 25.4e-6, "in": 0.0254, "inch": 0.0254,
+           "ft": 0.3048}
+
+_NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"
+_PLAIN = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
+_RKM = re.compile(r"^\s*(\d*)([RKkMGmunpµμ])(\d+)\s*(.*?)\s*$|^\s*(\d+)([RKkMG])\s*$")
+
+
+def unit_name(unit: str) -> str:
+    """The words for an expected unit in messages, e.g. ``'a capacitance (e.g. 8 pF)'``."""
+    name, example = UNITS[unit]
+    return f"{name} in {unit} (e.g. '{example}')"
+
+
+def _split_unit(text: str) -> tuple[float, str] | None:
+    """Split ``'kΩ'`` into (1e3, 'Ω'), ``'pF/cm'`` into (1e-10, 'F/m'); None when unknown."""
+    if "/" in text:
+        num, _, den = text.partition("/")
+        top = _split_unit(num.strip())
+        bottom = _split_length(den.strip())
+        if top is None or bottom is None or top[1] not in ("F", "s", "H", "Ω"):
+            return None
+        return top[0] / bottom, f"{top[1]}/m"
+    if text in _UNIT_ALIAS:
+        return 1.0, _UNIT_ALIAS[text]
+    if text in _LENGTH:
+        return _LENGTH[text], "m"
+    if text == "cm":
+        return 1e-2, "m"
+    if len(text) >= 2 and text[0] in _PREFIX and text[1:] in _UNIT_ALIAS:
+        base = _UNIT_ALIAS[text[1:]]
+        if base in ("%",) or (text[1:] == "R"):
+            return None
+        return _PREFIX[text[0]], base
+    return None
+
+
+def _split_length(text: str) -> float | None:
+    got = _split_unit(text)
+    if got is None or got[1] != "m":
+        return None
+    return got[0]
+
+
+def _fail(text, unit, field, problem, hint=None):
+    return UnitError(problem, field=field, value=text, expected=unit_name(unit), hint=hint)
+
+
+def parse(text: object, unit: str, *, field: str | None = None) -> float:
+    """Parse an engineering quantity into an SI float, checking its unit.
+
+    Parameters
+    ----------
+    text : str
+        What the user wrote, e.g. ``"4.7 kΩ"`` or ``"4k7"``.
+    unit : str
+        The SI unit expected: one of :data:`UNITS` (``"Ω"``, ``"F"``, ``"F/m"``...).
+        ``"%"`` returns a fraction (``"5 %"`` -> 0.05).
+    field : str, optional
+        The field path, for the error message.
+
+    Returns
+    -------
+    float
+        The value in SI base units (Ω, F, s, V, A, Hz, W, m, F/m, s/m, H/m).
+
+    Raises
+    ------
+    UnitError
+        When the text does not parse, has no unit, or has a unit of another dimension.
+
+    Examples
+    --------
+    >>> parse("4k7", "Ω")
+    4700.0
+    >>> round(parse("3.5 pF/in", "F/m"), 15)
+    1.37795e-10
+    """
+    if unit not in UNITS:
+        raise ValueError(f"unknown expected unit {unit!r}")
+    if isinstance(text, bool):
+        raise _fail(text, unit, field, "a yes/no value where a quantity belongs")
+    if isinstance(text, (int, float)):
+        _, example = UNITS[unit]
+        raise _fail(text, unit, field, "a bare number has no unit",
+                    hint=f"write it as a string with its unit, e.g. \"{text} {example.split()[-1]}\"")
+    if not isinstance(text, str):
+        raise _fail(text, unit, field, f"a {type(text).__name__} where a quantity belongs")
+    value = _parse_text(text, unit, field)
+    if not math.isfinite(value):
+        raise _fail(text, unit, field, "not a finite number")
+    return value
+
+
+def _parse_text(text: str, unit: str, field: str | None) -> float:
+    rkm = _RKM.match(text)
+    if rkm:
+        if rkm.group(5) is not None:  # '47R', '10K': a trailing letter, no decimals
+            whole, letter, frac, rest = rkm.group(5), rkm.group(6), "", ""
+        else:
+            whole, letter, frac, rest = rkm.group(1), rkm.group(2), rkm.group(3), rkm.group(4)
+        if unit == "Ω" and letter in "mnpµμu":
+            # Sub-ohm RKM codes are written with R ('R47'); 'm' here would be milliohm.
+            scale = _PREFIX[letter]
+        elif letter == "R":
+            scale = 1.0
+        else:
+            scale = _PREFIX.get(letter)
+        base = unit if not rest else None
+        if rest:
+            got = _split_unit(rest)
+            if got is None or got[0] != 1.0:
+                raise _fail(text, unit, field, f"unknown unit '{rest}'")
+            base = got[1]
+        if letter == "R" and unit != "Ω":
+            raise _fail(text, unit, field, "the RKM code with R is for resistances")
+        if base != unit:
+            raise _fail(text, unit, field, f"a value in {base} where {UNITS[unit][0]} belongs")
+        return _scaled(f"{whole or '0'}.{frac or '0'}", scale)
+    m = _PLAIN.match(text)
+    if not m:
+        raise _fail(text, unit, field, "not a number with a unit")
+    number, rest = float(m.group(1)), m.group(2)
+    if not rest:
+        _, example = UNITS[unit]
+        raise _fail(text, unit, field, "a bare number has no unit",
+                    hint=f"add the unit, e.g. \"{m.group(1)} {example.split()[-1]}\"")
+    rest = rest.replace("·", "").replace(" ", "")
+    got = _split_unit(rest)
+    if got is None:
+        raise _fail(text, unit, field, f"unknown unit '{rest}'")
+    scale, base = got
+    if base != unit:
+        raise _fail(text, unit, field, f"a value in {base} where {UNITS[unit][0]} belongs")
+    if base == "%":
+        return number / 100.0
+    return _scaled(m.group(1), scale)
+
+
+def _scaled(number: str, scale: float) -> float:
+    """number × scale, exact to the last digit where the scale is a power of ten.
+
+    ``2.2 × 1e-9`` in floating point is 2.2000000000000003e-09; reading ``"2.2e-9"``
+    gives the nearest double to the written value instead.
+    """
+    exponent = math.log10(scale)
+    if exponent == round(exponent):
+        return float(Decimal(number).scaleb(int(round(exponent))))
+    return float(number) * scale
+
+
+def parse_ratio(text: object, *, field: str | None = None) -> float:
+    """Parse a tolerance or fraction written as a percentage (``"5 %"`` -> 0.05)."""
+    return parse(text, "%", field=field)
+
+
+@dataclass(frozen=True)
+class Threshold:
+    """A voltage that may be relative to a part's own supply: ``scale·VDD + offset``.
+
+    ``"0.7 VDD"`` is ``Threshold(0.7, 0.0)``; ``"VDD - 0.4 V"`` is ``Threshold(1.0, -0.4)``;
+    ``"2.0 V"`` is ``Threshold(0.0, 2.0)``.
+    """
+
+    scale: float
+    offset: float
+    text: str = ""
+
+    @property
+    def relative(self) -> bool:
+        return self.scale != 0.0
+
+    def resolve(self, vdd):
+        """The threshold at a supply voltage (scalar or numpy array). [V]"""
+        if self.scale == 0.0:
+            return self.offset if np.ndim(vdd) == 0 else np.full(np.shape(vdd), self.offset)
+        return self.scale * np.asarray(vdd, dtype=float) + self.offset if np.ndim(vdd) else (
+            self.scale * float(vdd) + self.offset)
+
+    def __str__(self) -> str:
+        return self.text or format_threshold(self)
+
+
+def format_threshold(th: Threshold) -> str:
+    if th.scale == 0.0:
+        return format_si(th.offset, "V")
+    head = "VDD" if th.scale == 1.0 else f"{th.scale:g} VDD"
+    if th.offset == 0.0:
+        return head
+    sign = "+" if th.offset > 0 else "-"
+    return f"{head} {sign} {format_si(abs(th.offset), 'V')}"
+
+
+_TERM_SPLIT = re.compile(r"(?<![eE])\s*([+-])\s*")
+_VDD_TERM = re.compile(rf"^\s*(?:({_NUMBER})\s*(%)?\s*[*×·]?\s*)?VDD\s*$", re.IGNORECASE)
+
+
+def parse_threshold(text: object, *, field: str | None = None) -> Threshold:
+    """Parse ``"0.7 VDD"``, ``"VDD - 0.4 V"``, ``"70 % VDD"`` or ``"2.0 V"`` into a Threshold.
+
+    Raises
+    ------
+    UnitError
+        When a term is neither a multiple of VDD nor a voltage.
+    """
+    expected = "a voltage ('2.0 V') or one relative to the supply ('0.7 VDD', 'VDD - 0.4 V')"
+    if not isinstance(text, str):
+        if isinstance(text, (int, float)) and not isinstance(text, bool):
+            raise UnitError("a bare number has no unit", field=field, value=text,
+                            expected=expected, hint=f"write \"{text} V\" or \"{text} VDD\"")
+        raise UnitError(f"a {type(text).__name__} where a threshold belongs", field=field,
+                        value=text, expected=expected)
+    body = text.strip()
+    if not body:
+        raise UnitError("an empty threshold", field=field, value=text, expected=expected)
+    # Split into signed terms; a leading sign belongs to the first term.
+    pieces = _TERM_SPLIT.split(body)
+    terms: list[tuple[str, str]] = []
+    sign = "+"
+    if pieces and pieces[0] == "":
+        pieces = pieces[1:]
+        sign = pieces.pop(0) if pieces else "+"
+    terms.append((sign, pieces[0]))
+    for i in range(1, len(pieces) - 1, 2):
+        terms.append((pieces[i], pieces[i + 1]))
+    scale = offset = 0.0
+    for sign, term in terms:
+        k = -1.0 if sign == "-" else 1.0
+        vm = _VDD_TERM.match(term)
+        if vm:
+            coef = float(vm.group(1)) if vm.group(1) else 1.0
+            if vm.group(2):
+                coef /= 100.0
+            scale += k * coef
+            continue
+        try:
+            offset += k * _parse_text(term, "V", field)
+        except UnitError:
+            raise UnitError("not a voltage or a multiple of VDD", field=field, value=text,
+                            expected=expected) from None
+    if not (math.isfinite(scale) and math.isfinite(offset)):
+        raise UnitError("not a finite threshold", field=field, value=text, expected=expected)
+    return Threshold(scale, offset, body)
+
+
+def format_si(value, unit: str, digits: int = 3) -> str:
+    """Format an SI float with an SI prefix and ``digits`` significant digits.
+
+    >>> format_si(2200.0, "Ω")
+    '2.2 kΩ'
+    >>> format_si(1.12e-10, "F")
+    '112 pF'
+    >>> format_si(2.1349e-6, "s")
+    '2.13 µs'
+    """
+    from quantiphy import Quantity
+
+    if value is None:
+        return "—"
+    if isinstance(value, (bool, np.bool_)):
+        return "yes" if value else "no"
+    value = float(value)
+    if not math.isfinite(value):
+        return f"{value} {unit}".strip()
+    if unit == "%":
+        return f"{_sig(value * 100.0, digits)} %"
+    if "/" in unit:
+        return _per_length(value, unit, digits)
+    if value == 0.0:
+        return f"0 {unit}".strip()
+    q = Quantity(value, unit)
+    text = q.render(prec=digits - 1, strip_zeros=True, map_sf=Quantity.map_sf_to_greek)
+    # quantiphy puts no space between number and a bare unit with a prefix ("2.2kΩ"): add one.
+    m = re.match(rf"^({_NUMBER})\s*(.*)$", text)
+    if m:
+        return f"{m.group(1)} {m.group(2)}".strip()
+    return text
+
+
+def _per_length(value: float, unit: str, digits: int) -> str:
+    """Per-length values read best per centimetre on boards: '0.8 pF/cm', '58 ps/cm'."""
+    base = unit.split("/")[0]
+    return f"{format_si(value * 0.01, base, digits)}/cm"
+
+
+def _sig(x: float, digits: int) -> str:
+    return f"{x:.{digits}g}"
