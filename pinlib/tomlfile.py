@@ -26,7 +26,7 @@ if sys.version_info >= (3, 11):
 else:  # pragma: no cover - exercised on 3.10 only
     import tomli as tomllib
 
-__all__ = ["load", "line_index", "line_of", "atomic_write", "file_lock"]
+__all__ = ["load", "line_index", "line_of", "dotted", "atomic_write", "file_lock"]
 
 _KEY = r'(?:[A-Za-z0-9_-]+|"[^"]*"|\'[^\']*\')'
 _DOTTED = rf"{_KEY}(?:\s*\.\s*{_KEY})*"
@@ -98,6 +98,14 @@ def _resolve_arrays(parts: tuple, counters: dict[tuple, int]) -> tuple:
         out = out + (p,)
         if out in counters:
             out = out + (counters[out],)
+    return out
+
+
+def dotted(loc) -> str:
+    """A key path as users read it: ``('bus', 0, 'devices', 2, 'part')`` -> ``bus[0].devices[2].part``."""
+    out = ""
+    for p in loc:
+        out += f"[{p}]" if isinstance(p, int) else (f".{p}" if out else str(p))
     return out
 
 

@@ -24,6 +24,7 @@ from pydantic import ValidationError
 from pinlib.errors import LibraryError, PinlibError
 from pinlib.library.schema import FORMAT, Part
 from pinlib.library.values import Sourced
+from pinlib.tomlfile import dotted as dotted_path
 from pinlib.tomlfile import line_index, line_of, load
 
 __all__ = [
@@ -79,7 +80,7 @@ def pydantic_errors(exc: ValidationError, *, file=None, locate=None, cls=Library
     out: list[PinlibError] = []
     for err in exc.errors(include_url=False):
         loc = tuple(err.get("loc", ()))
-        dotted = ".".join(str(p) for p in loc)
+        dotted = dotted_path(loc)
         where = origin_file(loc) if origin_file else file
         line = locate(where, loc) if locate else None
         inner = (err.get("ctx") or {}).get("error")

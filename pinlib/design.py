@@ -1,0 +1,633 @@
+"""Design files, ``format = "pinlib.design/1"``: loading, checking references, objects.
+
+A design is the buses of one board built from library parts.  Loading happens in two
+passes.  The first checks the file's structure and units with pydantic models (a
+misspelt key or a capacitance written in henries is an error that names the file,
+line and field).  The second resolves references — part ids against the merged
+library, geometry names against ``[board.geometry]`` — and checks what a bus needs:
+a controller, the pins its protocol uses, a bridging part present on both sides.
+
+The result is a tree of plain dataclasses (:class:`Design` > :class:`Bus` >
+:class:`Segment` / :class:`Line` > :class:`Device`) holding SI floats and resolved
+:class:`~pinlib.library.schema.Part` objects, which the engines read.
+"""
+
+from __future__ import annotations
+
+import os
+from dataclasses import dataclass, field, replace
+from pathlib import Path
+from typing import Annotated, Literal
+
+from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, ValidationError
+
+from pinlib.errors import DesignError, PinlibError
+from pinlib.library.loader import Library, load_library, pydantic_errors
+from pinlib.library.schema import Part
+from pinlib.quantity import parse
+from pinlib.tomlfile import dotted as dotted_path
+from pinlib.tomlfile import line_index, line_of, load
+
+__all__ = [
+    "FORMAT",
+    "PROTOCOLS",
+    "MODES",
+    "Geometry",
+    "Section",
+    "Cable",
+    "Device",
+    "Segment",
+    "Line",
+    "Bus",
+    "Design",
+    "load_design",
+    "design_from_text",
+]
+
+FORMAT = "pinlib.design/1"
+PROTOCOLS = ("i2c", "smbus", "spi", "gpio")
+MODES = {"i2c": ("standard", "fast", "fast-plus"), "smbus": ("100k", "400k", "1m")}
+SPI_SIGNALS = ("sclk", "copi", "cipo", "cs")
+# The pin function each signal of a protocol uses.
+SIGNAL_FUNCTION = {"sda": "i2c-sda", "scl": "i2c-scl", "sclk": "spi-sclk", "copi": "spi-copi",
+                   "cipo": "spi-cipo", "cs": "spi-cs"}
+
+
+def _unit(unit, lo=None, hi=None):
+    def validate(raw, info=None):
+        x = parse(raw, unit, field=getattr(info, "field_name", None))
+        if x < 0 and unit not in ("V",):
+            raise DesignError("a negative value", value=raw, expected="zero or more")
+        if (lo is not None and x < lo) or (hi is not None and x > hi):
+            raise DesignError("outside the plausible range", value=raw,
+                              expected=f"between {lo:g} and {hi:g} {unit}")
+        return x
+
+    return Annotated[float, BeforeValidator(validate)]
+
+
+def _auto_or(unit, lo=None, hi=None, words=("auto",)):
+    inner = _unit(unit, lo, hi)
+
+    def validate(raw, info=None):
+        if isinstance(raw, str) and raw.strip().lower() in words:
+            return raw.strip().lower()
+        return raw
+
+    return Annotated[str | inner, BeforeValidator(validate)]  # type: ignore[valid-type]
+
+
+Length = _unit("m", 0.0, 1000.0)
+Capacitance = _unit("F", 0.0, 1e-6)
+Resistance = _unit("Ω", 0.0, 1e9)
+Voltage = _unit("V", -100.0, 100.0)
+Frequency = _unit("Hz", 0.0, 100e9)
+Ratio = _unit("%", 0.0, 1.0)
+CapPerLength = _unit("F/m", 0.0, 1e-6)
+DelayPerLength = _unit("s/m", 1e-9, 1e-6)
+PullupSetting = _auto_or("Ω", 1e-3, 1e9, words=("auto",))
+SeriesSetting = _auto_or("Ω", 0.0, 1e6, words=("auto", "none"))
+
+
+class _Raw(BaseModel):
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+
+class RawGeometry(_Raw):
+    kind: Literal["microstrip", "stripline"]
+    width: Length
+    height: Length | None = None      # microstrip: to the plane; stripline: to each plane
+    spacing: Length | None = None     # stripline: plane to plane
+    thickness: Length = 35e-6         # 1 oz copper, common practice
+    er: Annotated[float, Field(ge=1.0, le=100.0)]
+    method: str | None = None
+
+
+class RawSection(_Raw):
+    length: Length
+    geometry: str | None = None
+    capacitance: CapPerLength | None = None
+    delay: DelayPerLength | None = None
+    part: str | None = None           # a cable class from the library
+
+
+class RawTrace(RawSection):
+    sections: tuple[RawSection, ...] = ()
+    length: Length | None = None  # type: ignore[assignment]
+    series_resistor: SeriesSetting = "none"  # push-pull lines only
+    extra_capacitance: Capacitance = 0.0
+
+
+class RawCable(_Raw):
+    part: str
+    length: Length
+
+
+class RawDevice(_Raw):
+    ref: Annotated[str, Field(min_length=1, max_length=40)]
+    part: str
+    role: Literal["controller", "peripheral", "target"] = "peripheral"
+    supply: Voltage | None = None
+    switched: bool = False
+    series_resistor: Resistance | None = None
+    side: Literal["a", "b"] | None = None
+    internal_pullups: bool = False
+    pin: str | None = None
+    capacitance_tolerance: Ratio | None = None
+
+
+class RawSegment(_Raw):
+    id: str | None = None
+    supply: Voltage | None = None
+    supply_tolerance: Ratio | None = None
+    pullup: PullupSetting | None = None
+    pullup_tolerance: Ratio | None = None
+    pullup_series: str | None = None
+    trace: RawTrace | None = None
+    extra_capacitance: Capacitance | None = None
+    capacitance_tolerance: Ratio | None = None
+    length_tolerance: Ratio | None = None
+    cables: tuple[RawCable, ...] = ()
+    devices: tuple[RawDevice, ...] = ()
+
+
+class RawBus(RawSegment):
+    id: str
+    protocol: Literal[PROTOCOLS]  # type: ignore[valid-type]
+    title: str | None = None
+    mode: str | None = None
+    clock: Frequency | None = None
+    spi_mode: Annotated[int, Field(ge=0, le=3)] = 0
+    segment: tuple[RawSegment, ...] = ()
+    lines: dict[str, RawTrace] = Field(default_factory=dict)
+
+
+class RawBoard(_Raw):
+    geometry: dict[str, RawGeometry] = Field(default_factory=dict)
+
+
+class RawDesign(_Raw):
+    format: Literal["pinlib.design/1"]
+    title: str
+    description: str | None = None
+    library: tuple[str, ...] = ()
+    warn_margin: Ratio = 0.10
+    distribution: Literal["uniform", "normal"] = "uniform"
+    board: RawBoard = RawBoard()
+    bus: tuple[RawBus, ...] = ()
+
+
+# ---------------------------------------------------------------- resolved objects
+
+
+@dataclass(frozen=True)
+class Geometry:
+    name: str
+    kind: str
+    width: float
+    height: float | None
+    spacing: float | None
+    thickness: float
+    er: float
+    method: str | None = None
+
+
+@dataclass(frozen=True)
+class Section:
+    """A stretch of a line: a board trace of a named geometry, per-length values given
+    directly, or a cable class from the library."""
+
+    length: float
+    geometry: Geometry | None = None
+    capacitance: float | None = None  # F/m
+    delay: float | None = None        # s/m
+    impedance: float | None = None    # Ω, from a cable class
+    part_id: str | None = None
+
+
+@dataclass(frozen=True)
+class Cable:
+    part_id: str
+    part: Part
+    length: float
+
+
+@dataclass(frozen=True)
+class Device:
+    ref: str
+    part_id: str
+    part: Part
+    role: str = "peripheral"
+    supply: float | None = None       # the device's own rail; None: the bus supply
+    switched: bool = False
+    series_resistor: float | None = None
+    side: str | None = None
+    internal_pullups: bool = False
+    pin: str | None = None
+    capacitance_tolerance: float | None = None
+    loc: tuple = ()                   # its place in the file, for messages
+
+    @property
+    def is_controller(self) -> bool:
+        return self.role == "controller"
+
+    @property
+    def is_bridge(self) -> bool:
+        return bool(self.part.sides)
+
+
+@dataclass(frozen=True)
+class Segment:
+    """A stretch of open-drain bus with one supply and one pull-up per line."""
+
+    id: str
+    supply: float
+    supply_tolerance: float
+    pullup: object                    # "auto" or a resistance [Ω]
+    pullup_tolerance: float
+    pullup_series: str
+    sections: tuple[Section, ...]
+    extra_capacitance: float
+    capacitance_tolerance: float
+    length_tolerance: float
+    cables: tuple[Cable, ...]
+    devices: tuple[Device, ...]
+    loc: tuple = ()
+
+
+@dataclass(frozen=True)
+class Line:
+    """One routed push-pull signal."""
+
+    signal: str
+    sections: tuple[Section, ...]
+    series_resistor: object           # "auto", "none" or a resistance [Ω]
+    extra_capacitance: float = 0.0
+    loc: tuple = ()
+
+    @property
+    def length(self) -> float:
+        return sum(s.length for s in self.sections)
+
+
+@dataclass(frozen=True)
+class Bus:
+    id: str
+    protocol: str
+    mode: str | None
+    clock: float | None
+    supply: float | None
+    supply_tolerance: float
+    segments: tuple[Segment, ...] = ()
+    devices: tuple[Device, ...] = ()  # every device (all segments)
+    lines: dict[str, Line] = field(default_factory=dict)
+    spi_mode: int = 0
+    title: str | None = None
+    capacitance_tolerance: float = 0.0
+    length_tolerance: float = 0.0
+    loc: tuple = ()
+
+    @property
+    def controllers(self) -> list[Device]:
+        return [d for d in self.devices if d.is_controller]
+
+    @property
+    def peripherals(self) -> list[Device]:
+        return [d for d in self.devices if not d.is_controller]
+
+
+@dataclass(frozen=True)
+class Design:
+    title: str
+    path: Path | None
+    buses: tuple[Bus, ...]
+    geometries: dict[str, Geometry]
+    library: Library
+    warn_margin: float = 0.10
+    distribution: str = "uniform"
+    description: str | None = None
+    text: str = ""
+
+    def bus(self, bus_id: str) -> Bus:
+        for b in self.buses:
+            if b.id == bus_id:
+                return b
+        raise KeyError(bus_id)
+
+    def device(self, ref: str) -> tuple[Bus, Device]:
+        """The first (bus, device) with this reference designator."""
+        for b in self.buses:
+            for d in b.devices:
+                if d.ref == ref:
+                    return b, d
+        raise KeyError(ref)
+
+    def with_parts(self, swaps: dict[str, str]) -> Design:
+        """The same design with parts substituted by reference: ``{"U4": "eeprom-alt"}``."""
+        return _build(self._raw, self.path, self.library, self.text, swaps)
+
+    _raw: RawDesign | None = None
+
+
+# ---------------------------------------------------------------- loading
+
+
+def load_design(path: str | os.PathLike, *, library_folders=(), library: Library | None = None,
+                swaps: dict[str, str] | None = None) -> Design:
+    """Load a design file and resolve its parts.
+
+    Parameters
+    ----------
+    path : path
+        The design file.
+    library_folders : iterable of paths
+        Extra team library folders (the command line's ``--library``); they take
+        precedence over the design's own ``library`` folders.
+    library : Library, optional
+        An already-merged library to use instead of loading one.
+    swaps : dict, optional
+        Parts to substitute, by reference designator.
+    """
+    path = Path(path)
+    data, text = load(path, error=DesignError)
+    return design_from_text(data, text, path, library_folders=library_folders, library=library,
+                            swaps=swaps)
+
+
+def design_from_text(data: dict, text: str, path: Path | None, *, library_folders=(),
+                     library: Library | None = None, swaps=None) -> Design:
+    index = line_index(text)
+    fname = str(path) if path else None
+
+    def at(loc):
+        return {"file": fname, "line": line_of(index, loc)}
+
+    if data.get("format") != FORMAT:
+        raise DesignError("not a design file", field="format", value=data.get("format"),
+                          expected=f'format = "{FORMAT}"', **at(("format",)))
+    try:
+        raw = RawDesign.model_validate(data)
+    except ValidationError as exc:
+        errors = pydantic_errors(exc, file=fname, locate=lambda _f, loc: line_of(index, loc),
+                                 cls=DesignError)
+        raise errors[0] from None
+    if library is None:
+        base = path.parent if path else Path.cwd()
+        folders = [base / p for p in raw.library] + [Path(p) for p in library_folders]
+        library = load_library(folders)
+        missing = [p for p in library.problems if "folder not found" in p.problem]
+        if missing:
+            raise DesignError("a library folder named by the design does not exist",
+                              field="library", value=missing[0].file, **at(("library",)))
+    return _build(raw, path, library, text, swaps or {})
+
+
+def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> Design:
+    index = line_index(text)
+    fname = str(path) if path else None
+
+    def err(problem, loc, **kw):
+        dotted = dotted_path(loc)
+        return DesignError(problem, file=fname, line=line_of(index, loc), field=dotted, **kw)
+
+    geometries = {
+        name: Geometry(name, g.kind, g.width, g.height, g.spacing, g.thickness, g.er, g.method)
+        for name, g in raw.board.geometry.items()
+    }
+    for name, g in geometries.items():
+        loc = ("board", "geometry", name)
+        if g.kind == "microstrip" and g.height is None:
+            raise err("a microstrip needs its height above the plane", loc + ("height",))
+        if g.kind == "stripline" and g.height is None and g.spacing is None:
+            raise err("a stripline needs spacing (plane to plane) or height (to each plane)",
+                      loc + ("spacing",))
+
+    used_refs: dict[str, tuple] = {}
+    swapped: set[str] = set()
+
+    def device(d: RawDevice, loc) -> Device:
+        if d.ref in used_refs and used_refs[d.ref][:2] != loc[:2]:
+            pass  # the same part may sit on several buses (a controller); allowed
+        used_refs.setdefault(d.ref, loc)
+        part_id = swaps.get(d.ref, d.part)
+        if d.ref in swaps:
+            swapped.add(d.ref)
+        try:
+            part = library.get(part_id)
+        except PinlibError as e:
+            raise err("unknown part", loc + ("part",), value=part_id, hint=e.hint) from None
+        if part.abstract:
+            raise err("an abstract class cannot be placed on a board", loc + ("part",),
+                      value=part_id, hint="place a part that extends it, or `pinlib parts new`")
+        if part.category == "cable":
+            raise err("a cable class belongs in `cables` or a line's sections", loc + ("part",),
+                      value=part_id)
+        role = "peripheral" if d.role == "target" else d.role
+        return Device(d.ref, part_id, part, role, d.supply, d.switched, d.series_resistor,
+                      d.side, d.internal_pullups, d.pin, d.capacitance_tolerance, loc)
+
+    def sections(t: RawTrace | RawSection | None, loc) -> tuple[Section, ...]:
+        if t is None:
+            return ()
+        subs = getattr(t, "sections", ())
+        if subs:
+            if t.length is not None or t.geometry or t.capacitance or t.part:
+                raise err("give either sections or one stretch (length, geometry...), not both",
+                          loc + ("sections",))
+            out = ()
+            for i, s in enumerate(subs):
+                out += sections(s, loc + ("sections", i))
+            return out
+        if t.length is None:
+            raise err("a trace needs its length", loc + ("length",))
+        if t.part:
+            try:
+                cable = library.get(t.part)
+            except PinlibError as e:
+                raise err("unknown part", loc + ("part",), value=t.part, hint=e.hint) from None
+            if cable.line is None:
+                raise err("the part is not a cable class (it has no [line] table)",
+                          loc + ("part",), value=t.part)
+            return (Section(t.length, None, cable.line.capacitance.value,
+                            cable.line.delay.value if cable.line.delay else None,
+                            cable.line.impedance.value if cable.line.impedance else None,
+                            t.part),)
+        if t.geometry:
+            if t.geometry not in geometries:
+                raise err("unknown geometry", loc + ("geometry",), value=t.geometry,
+                          hint="defined: " + (", ".join(geometries) or "none; add "
+                                              "[board.geometry.NAME]"))
+            if t.capacitance is not None or t.delay is not None:
+                raise err("give a geometry or per-length values, not both",
+                          loc + ("capacitance",))
+            return (Section(t.length, geometries[t.geometry]),)
+        if t.capacitance is None:
+            raise err("a trace needs a geometry or its capacitance per length",
+                      loc + ("geometry",), expected="geometry = \"NAME\" or capacitance = "
+                      "\"0.8 pF/cm\"")
+        return (Section(t.length, None, t.capacitance, t.delay),)
+
+    def cables(items, loc) -> tuple[Cable, ...]:
+        out = []
+        for i, c in enumerate(items):
+            try:
+                part = library.get(c.part)
+            except PinlibError as e:
+                raise err("unknown part", loc + (i, "part"), value=c.part, hint=e.hint) from None
+            if part.line is None:
+                raise err("the part is not a cable class (it has no [line] table)",
+                          loc + (i, "part"), value=c.part)
+            out.append(Cable(c.part, part, c.length))
+        return tuple(out)
+
+    buses = []
+    ids = set()
+    for bi, rb in enumerate(raw.bus):
+        bloc = ("bus", bi)
+        if rb.id in ids:
+            raise err("two buses share one id", bloc + ("id",), value=rb.id)
+        ids.add(rb.id)
+        modes = MODES.get(rb.protocol)
+        mode = rb.mode
+        if modes:
+            mode = mode or modes[1 if rb.protocol == "i2c" else 0]
+            if mode not in modes:
+                raise err("unknown mode", bloc + ("mode",), value=rb.mode,
+                          expected="one of " + ", ".join(modes))
+        elif rb.mode is not None:
+            raise err(f"a {rb.protocol} bus has no mode", bloc + ("mode",), value=rb.mode,
+                      hint="give its clock instead" if rb.protocol == "spi" else None)
+        if rb.protocol in ("i2c", "smbus"):
+            bus = _open_drain_bus(rb, bloc, mode, device, sections, cables, err)
+        else:
+            bus = _push_pull_bus(rb, bloc, device, sections, err)
+        buses.append(bus)
+    unknown = set(swaps) - swapped
+    if unknown:
+        raise DesignError("no device with this reference", field="swap",
+                          value=sorted(unknown)[0], file=fname)
+    design = Design(raw.title, Path(path) if path else None, tuple(buses), geometries, library,
+                    raw.warn_margin, raw.distribution, raw.description, text)
+    object.__setattr__(design, "_raw", raw)
+    return design
+
+
+_SEGMENT_KEYS = ("supply", "supply_tolerance", "pullup", "pullup_tolerance", "pullup_series",
+                 "trace", "extra_capacitance", "capacitance_tolerance", "length_tolerance")
+
+
+def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bus:
+    if rb.lines:
+        raise err("an open-drain bus has no per-signal lines", bloc + ("lines",),
+                  hint="give the bus (or each segment) a trace")
+    raws = list(rb.segment)
+    if raws and rb.devices:
+        raise err("devices go in the segments when a bus has segments", bloc + ("devices",))
+    if not raws:
+        raws = [RawSegment(id=rb.id)]
+        seg_locs = [bloc]
+        own = [rb]
+    else:
+        seg_locs = [bloc + ("segment", i) for i in range(len(raws))]
+        own = raws
+    segments = []
+    all_devices: list[Device] = []
+    for si, (rs, sloc) in enumerate(zip(own, seg_locs)):
+        # A segment key falls back to the bus's own value.
+        def pick(key, default=None, rs=rs):
+            v = getattr(rs, key)
+            if v is None and rs is not rb:
+                v = getattr(rb, key)
+            return default if v is None else v
+
+        supply = pick("supply")
+        if supply is None:
+            raise err("a bus needs its pull-up supply", sloc + ("supply",),
+                      expected="supply = \"3.3 V\"")
+        if supply <= 0:
+            raise err("the supply must be positive", sloc + ("supply",), value=supply)
+        devices = tuple(device(d, sloc + ("devices", i)) for i, d in enumerate(rs.devices))
+        seg_id = rs.id or (rb.id if len(own) == 1 else f"{rb.id}-{si + 1}")
+        cab = cables(rs.cables or (rb.cables if rs is not rb else ()), sloc + ("cables",))
+        series = pick("pullup_series", "E24")
+        from pinlib.eseries import SERIES_NAMES
+        if series.upper() not in SERIES_NAMES:
+            raise err("unknown preferred-value series", sloc + ("pullup_series",), value=series,
+                      expected="one of " + ", ".join(SERIES_NAMES))
+        segments.append(Segment(
+            seg_id, supply, pick("supply_tolerance", 0.0), pick("pullup", "auto"),
+            pick("pullup_tolerance", 0.01), series.upper(),
+            sections(pick("trace"), sloc + ("trace",)), pick("extra_capacitance", 0.0),
+            pick("capacitance_tolerance", 0.0), pick("length_tolerance", 0.0), cab, devices,
+            sloc))
+        all_devices.extend(devices)
+    if not any(d.is_controller for d in all_devices):
+        raise err("a bus needs a controller", bloc + ("devices",),
+                  hint="mark one device role = \"controller\"")
+    for seg in segments:
+        for d in seg.devices:
+            side = d.side
+            if d.is_bridge and side is None:
+                raise err("a bridging part names its side in each segment", d.loc + ("side",),
+                          expected='side = "a" or "b"')
+            if not d.is_bridge and side is not None:
+                raise err("only a bridging part has sides", d.loc + ("side",), value=side)
+            for fn in ("i2c-sda", "i2c-scl"):
+                if d.part.pin_for(fn, side) is None:
+                    raise err(f"the part has no {fn} pin" + (f" on side {side}" if side else ""),
+                              d.loc + ("part",), value=d.part_id,
+                              hint="an I2C/SMBus device needs SDA and SCL pins")
+    bridges: dict[str, list[str]] = {}
+    for seg in segments:
+        for d in seg.devices:
+            if d.is_bridge:
+                bridges.setdefault(d.ref, []).append(d.side)
+    for ref, sides in bridges.items():
+        if sorted(sides) != ["a", "b"]:
+            loc = next(d.loc for s in segments for d in s.devices if d.ref == ref)
+            raise err("a bridging part must appear in two segments, once per side",
+                      loc + ("ref",), value=ref, hint=f"found side(s): {', '.join(sides)}")
+    return Bus(rb.id, rb.protocol, mode, rb.clock, segments[0].supply,
+               segments[0].supply_tolerance, tuple(segments), tuple(all_devices), {},
+               rb.spi_mode, rb.title, segments[0].capacitance_tolerance,
+               segments[0].length_tolerance, bloc)
+
+
+def _push_pull_bus(rb: RawBus, bloc, device, sections, err) -> Bus:
+    if rb.segment:
+        raise err(f"a {rb.protocol} bus has no segments", bloc + ("segment",),
+                  hint="route each signal under lines.<signal>")
+    for key in ("pullup", "pullup_tolerance", "pullup_series", "cables"):
+        if getattr(rb, key):
+            raise err(f"a {rb.protocol} bus has no {key}", bloc + (key,))
+    if rb.supply is None:
+        raise err("a bus needs its supply", bloc + ("supply",), expected="supply = \"3.3 V\"")
+    devices = tuple(device(d, bloc + ("devices", i)) for i, d in enumerate(rb.devices))
+    if not any(d.is_controller for d in devices):
+        raise err("a bus needs a controller", bloc + ("devices",),
+                  hint="mark one device role = \"controller\"")
+    lines = {}
+    for sig, rt in rb.lines.items():
+        loc = bloc + ("lines", sig)
+        if rb.protocol == "spi" and sig not in SPI_SIGNALS:
+            raise err("unknown SPI signal", loc, value=sig, expected=", ".join(SPI_SIGNALS))
+        lines[sig] = Line(sig, sections(rt, loc), rt.series_resistor, rt.extra_capacitance, loc)
+    if rb.protocol == "spi":
+        if rb.clock is None:
+            raise err("an SPI bus needs its clock", bloc + ("clock",),
+                      expected="clock = \"25 MHz\"")
+        for d in devices:
+            needed = ("spi-sclk", "spi-copi", "spi-cs") if d.is_controller else ("spi-sclk",)
+            for fn in needed:
+                if d.part.pin_for(fn, d.side) is None and not d.is_bridge:
+                    raise err(f"the part has no {fn} pin", d.loc + ("part",), value=d.part_id)
+        if "sclk" not in lines:
+            raise err("an SPI bus needs its SCLK routing", bloc + ("lines",),
+                      expected='lines.sclk = { length = "8 cm", geometry = "..." }')
+    return Bus(rb.id, rb.protocol, None, rb.clock, rb.supply, rb.supply_tolerance or 0.0, (),
+               devices, lines, rb.spi_mode, rb.title, rb.capacitance_tolerance or 0.0,
+               rb.length_tolerance or 0.0, bloc)
+
+
+def replace_device(dev: Device, **changes) -> Device:
+    return replace(dev, **changes)

@@ -1,0 +1,269 @@
+"""Result objects: figures, checks, and their roll-up per line, segment, bus and design.
+
+The JSON form (``format = "pinlib.result/1"``) is an interface that scripts depend on;
+see DESIGN.md.  Figures are SI floats with their unit (a yes/no figure is a JSON
+boolean).  A check compares one value with one limit whose ``source`` it names, and
+its ``margin`` is relative to the limit: positive means inside.  A passing check whose
+margin is under the design's warning threshold is a warning.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from typing import Any
+
+__all__ = [
+    "FORMAT",
+    "CAUTION",
+    "STATUSES",
+    "Figure",
+    "Check",
+    "check_max",
+    "check_min",
+    "check_true",
+    "Group",
+    "LineResult",
+    "SegmentResult",
+    "BusResult",
+    "DesignResult",
+    "worst",
+]
+
+FORMAT = "pinlib.result/1"
+STATUSES = ("pass", "warn", "fail")
+CAUTION = (
+    "pinlib's figures are estimates for design review. Confirm them by measurement or "
+    "simulation on the real board before relying on them; the published standards, local "
+    "codes and licensed engineering practice prevail over anything pinlib reports."
+)
+
+
+def worst(statuses) -> str:
+    """The worst of a collection of statuses (``fail`` > ``warn`` > ``pass``)."""
+    rank = {"pass": 0, "warn": 1, "fail": 2}
+    out = "pass"
+    for s in statuses:
+        if rank[s] > rank[out]:
+            out = s
+    return out
+
+
+@dataclass
+class Figure:
+    value: Any
+    unit: str = ""
+
+    def to_json(self) -> dict:
+        v = self.value
+        if isinstance(v, bool) or v is None or isinstance(v, str):
+            return {"value": v, "unit": self.unit}
+        v = float(v)
+        return {"value": v if math.isfinite(v) else None, "unit": self.unit}
+
+
+@dataclass
+class Check:
+    """One comparison of a value with a limit from a named source."""
+
+    id: str
+    status: str
+    value: Any
+    limit: Any
+    unit: str
+    margin: float | None
+    source: str
+    message: str
+    subject: str | None = None  # the signal, device or pin the check is about
+    fix: str | None = None      # what would make a failing check pass
+    details: dict = field(default_factory=dict)
+
+    def to_json(self) -> dict:
+        out = {
+            "id": self.id,
+            "status": self.status,
+            "value": _json_num(self.value),
+            "limit": _json_num(self.limit),
+            "unit": self.unit,
+            "margin": _json_num(self.margin),
+            "source": self.source,
+            "message": self.message,
+        }
+        if self.subject:
+            out["subject"] = self.subject
+        if self.fix:
+            out["fix"] = self.fix
+        if self.details:
+            out["details"] = {k: _json_any(v) for k, v in self.details.items()}
+        return out
+
+
+def _json_num(v):
+    if v is None or isinstance(v, (bool, str)):
+        return v
+    v = float(v)
+    return v if math.isfinite(v) else None
+
+
+def _json_any(v):
+    if isinstance(v, (list, tuple)):
+        return [_json_any(x) for x in v]
+    if isinstance(v, dict):
+        return {k: _json_any(x) for k, x in v.items()}
+    if hasattr(v, "item"):
+        v = v.item()
+    if isinstance(v, float):
+        return _json_num(v)
+    return v
+
+
+def _status(margin: float, warn_margin: float) -> str:
+    if not math.isfinite(margin) and margin > 0:
+        return "pass"
+    if margin < 0 or math.isnan(margin):
+        return "fail"
+    return "warn" if margin < warn_margin else "pass"
+
+
+def check_max(id, value, limit, unit, source, message, *, warn_margin=0.10, **kw) -> Check:
+    """A check that ``value <= limit``; margin ``(limit - value) / |limit|``."""
+    value, limit = float(value), float(limit)
+    margin = (limit - value) / abs(limit) if limit != 0 else (math.inf if value <= 0 else -math.inf)
+    return Check(id, _status(margin, warn_margin), value, limit, unit, margin, source, message, **kw)
+
+
+def check_min(id, value, limit, unit, source, message, *, warn_margin=0.10, **kw) -> Check:
+    """A check that ``value >= limit``; margin ``(value - limit) / |limit|``."""
+    value, limit = float(value), float(limit)
+    margin = (value - limit) / abs(limit) if limit != 0 else (math.inf if value >= 0 else -math.inf)
+    return Check(id, _status(margin, warn_margin), value, limit, unit, margin, source, message, **kw)
+
+
+def check_true(id, ok, source, message, **kw) -> Check:
+    """A yes/no check: pass when ``ok``, fail otherwise (margin not defined)."""
+    return Check(id, "pass" if ok else "fail", bool(ok), True, "", None, source, message, **kw)
+
+
+@dataclass
+class Group:
+    """Figures, checks and notes of one line, segment or bus."""
+
+    figures: dict[str, Figure] = field(default_factory=dict)
+    checks: list[Check] = field(default_factory=list)
+    notes: list[str] = field(default_factory=list)
+
+    def figure(self, name: str, value, unit: str = "") -> None:
+        self.figures[name] = Figure(value, unit)
+
+    def add(self, check: Check) -> Check:
+        self.checks.append(check)
+        return check
+
+    def own_status(self) -> str:
+        return worst(c.status for c in self.checks)
+
+    def check(self, check_id: str) -> Check | None:
+        """The first check with this id (None when absent)."""
+        return next((c for c in self.checks if c.id == check_id), None)
+
+    def _json_body(self) -> dict:
+        out = {
+            "figures": {k: f.to_json() for k, f in self.figures.items()},
+            "checks": [c.to_json() for c in self.checks],
+        }
+        if self.notes:
+            out["notes"] = list(self.notes)
+        return out
+
+
+@dataclass
+class LineResult(Group):
+    signal: str = ""
+
+    @property
+    def status(self) -> str:
+        return self.own_status()
+
+    def to_json(self) -> dict:
+        return {"signal": self.signal, "status": self.status, **self._json_body()}
+
+
+@dataclass
+class SegmentResult(Group):
+    id: str = ""
+
+    @property
+    def status(self) -> str:
+        return self.own_status()
+
+    def to_json(self) -> dict:
+        return {"id": self.id, "status": self.status, **self._json_body()}
+
+
+@dataclass
+class BusResult(Group):
+    id: str = ""
+    protocol: str = ""
+    segments: list[SegmentResult] = field(default_factory=list)
+    lines: list[LineResult] = field(default_factory=list)
+
+    @property
+    def status(self) -> str:
+        return worst([self.own_status()] + [s.status for s in self.segments]
+                     + [ln.status for ln in self.lines])
+
+    def all_checks(self):
+        """Every check of the bus with where it sits: (segment id or None, signal or None, check)."""
+        for c in self.checks:
+            yield None, None, c
+        for s in self.segments:
+            for c in s.checks:
+                yield s.id, None, c
+        for ln in self.lines:
+            for c in ln.checks:
+                yield None, ln.signal, c
+
+    def to_json(self) -> dict:
+        out = {"id": self.id, "protocol": self.protocol, "status": self.status,
+               **self._json_body()}
+        if self.segments:
+            out["segments"] = [s.to_json() for s in self.segments]
+        out["lines"] = [ln.to_json() for ln in self.lines]
+        return out
+
+
+@dataclass
+class DesignResult:
+    design: str
+    path: str | None = None
+    buses: list[BusResult] = field(default_factory=list)
+    warn_margin: float = 0.10
+    notes: list[str] = field(default_factory=list)
+
+    @property
+    def status(self) -> str:
+        return worst(b.status for b in self.buses)
+
+    def bus(self, bus_id: str) -> BusResult:
+        for b in self.buses:
+            if b.id == bus_id:
+                return b
+        raise KeyError(bus_id)
+
+    def exit_code(self) -> int:
+        return 1 if self.status == "fail" else 0
+
+    def to_json(self) -> dict:
+        out = {
+            "format": FORMAT,
+            "design": self.design,
+            "status": self.status,
+            "caution": CAUTION,
+            "warn_margin": self.warn_margin,
+            "buses": [b.to_json() for b in self.buses],
+        }
+        if self.path:
+            out["path"] = self.path
+        if self.notes:
+            out["notes"] = list(self.notes)
+        return out
