@@ -19,7 +19,7 @@ from collections.abc import Iterable
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from pydantic import ValidationError
+from pydantic import BaseModel, ValidationError
 
 from pinlib.errors import LibraryError, PinlibError
 from pinlib.library.schema import FORMAT, Part
@@ -174,7 +174,7 @@ def _with_origins(part: Part, origin: dict, own: str) -> Part:
             return {k: walk(v, path + (k,)) for k, v in obj.items()}
         if isinstance(obj, tuple):
             return tuple(walk(v, path + (i,)) for i, v in enumerate(obj))
-        if hasattr(obj, "model_fields"):
+        if isinstance(obj, BaseModel):
             changes = {name: walk(getattr(obj, name), path + (name,))
                        for name in type(obj).model_fields}
             return obj.model_copy(update=changes)
@@ -268,6 +268,7 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
     team_seen: dict[str, Path] = {}
     sources = ([(BUILTIN_DIR, True)] if builtin else []) + [
         (Path(f), False) for f in library_folders(folders, env=env)]
+    loaded: set[Path] = set()
     for folder, is_builtin in sources:
         if not folder.is_dir():
             err = LibraryError("library folder not found", file=str(folder))
@@ -275,6 +276,12 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
                 raise err
             lib.problems.append(err)
             continue
+        if folder.resolve() in loaded:
+            # The same folder named twice (PINLIB_LIBRARY and --library, relative and
+            # absolute): its files are already in; reading them again would report every
+            # part as two team parts sharing one id.
+            continue
+        loaded.add(folder.resolve())
         lib.folders.append(folder)
         for path in sorted(folder.rglob("*.toml")):
             try:

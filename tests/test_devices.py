@@ -1,0 +1,475 @@
+"""Contract tests of the curated built-in library (``devices/``).
+
+The built-in library is data, not code, but every engine trusts it: these tests hold
+each part class to the format's rules (provenance on every value, worst-case limits,
+the pins each protocol needs) and to the published limits its class claims to meet.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+
+import pytest
+from pydantic import BaseModel
+
+from pinlib.library.loader import BUILTIN_DIR, load_library
+from pinlib.library.schema import Part, Pin
+from pinlib.library.values import BASES, Sourced
+
+# ---------------------------------------------------------------------------
+# Helpers
+# ---------------------------------------------------------------------------
+
+
+@pytest.fixture(scope="module")
+def lib():
+    # env=False: a user's PINLIB_LIBRARY must not leak team parts into this test.
+    return load_library(env=False)
+
+
+def _values(obj, path=()):
+    """Every Sourced value inside a part, with its key path in the file."""
+    if isinstance(obj, Sourced):
+        yield path, obj
+    elif isinstance(obj, dict):
+        for k, v in obj.items():
+            yield from _values(v, path + (k,))
+    elif isinstance(obj, tuple):
+        for i, v in enumerate(obj):
+            yield from _values(v, path + (i,))
+    elif isinstance(obj, BaseModel):
+        for name in type(obj).model_fields:
+            yield from _values(getattr(obj, name), path + (name,))
+
+
+def _pin_groups(part: Part):
+    """(side, pins) for the part's own pins and for each side of a bridge."""
+    groups = [(None, part.pins)] if part.pins else []
+    groups += [(name, side.pins) for name, side in part.sides.items()]
+    return groups
+
+
+def _all_pins(part: Part):
+    for side, pins in _pin_groups(part):
+        for name, pin in pins.items():
+            yield side, name, pin
+
+
+def _supply_range(part: Part, side):
+    s = part.supply_for(side)
+    return None if s is None else (s.min.value, s.max.value)
+
+
+def _raw_has(raw, path) -> bool:
+    node = raw
+    for key in path:
+        if isinstance(node, dict) and key in node:
+            node = node[key]
+        elif isinstance(node, list) and isinstance(key, int) and key < len(node):
+            node = node[key]
+        else:
+            return False
+    return True
+
+
+def _extends(lib, pid: str, base: str) -> bool:
+    return base in lib.chain(pid)[1:]
+
+
+# ---------------------------------------------------------------------------
+# Loading, counts, provenance
+# ---------------------------------------------------------------------------
+
+
+def test_builtin_library_loads_without_problems(lib):
+    assert [str(p) for p in lib.problems] == []
+    assert lib.folders == [BUILTIN_DIR]
+
+
+def test_library_size(lib):
+    placeable = lib.placeable()
+    abstract = {k: p for k, p in lib.parts.items() if p.abstract}
+    assert len(placeable) >= 28, sorted(placeable)
+    assert len(abstract) >= 3, sorted(abstract)
+    assert len(placeable) + len(abstract) == len(lib)
+
+
+def test_every_abstract_class_is_extended(lib):
+    # An abstract class nobody extends is dead data that no engine ever reads.
+    for pid, part in lib.parts.items():
+        if part.abstract:
+            users = [c for c in lib.parts if c != pid and _extends(lib, c, pid)]
+            assert users, f"{pid} is abstract but nothing extends it"
+
+
+def test_ids_match_file_names_and_folders_match_categories(lib):
+    for pid, part in lib.parts.items():
+        path = lib.path_of(pid)
+        assert path.stem == pid
+        folder = path.parent.name
+        assert folder == part.category or (part.abstract and folder == "generic"), path
+
+
+def test_every_placeable_part_has_provenance(lib):
+    for pid, part in lib.placeable().items():
+        assert part.provenance.basis == "generic", pid  # the built-in library is generic only
+        assert part.provenance.source.strip(), f"{pid}: empty provenance source"
+        # Its own file says where it comes from, not only an ancestor's.
+        assert "provenance" in lib.files[pid].raw, f"{pid} inherits its provenance"
+
+
+def test_every_value_origin_resolves(lib):
+    for pid, part in lib.parts.items():
+        chain = lib.chain(pid)
+        for path, v in _values(part):
+            where = f"{pid}: {'.'.join(map(str, path))}"
+            assert v.origin in chain, f"{where} set by {v.origin}, not in {chain}"
+            assert _raw_has(lib.files[v.origin].raw, path), f"{where}: not in {v.origin}'s file"
+            assert v.basis is None or v.basis in BASES, where
+            assert v.origin in lib.parts, f"{where}: {v.origin} did not load"
+            source = v.source or lib.parts[v.origin].provenance.source
+            assert source and source.strip(), f"{where}: no source and no provenance source"
+
+
+# Semiconductor, module and connector vendors (from memory: common names in the trade).
+# Matched as whole words, case-insensitive.
+_VENDORS = [
+    "texas instruments", "analog devices", "microchip", "atmel", "nxp", "philips",
+    "stmicroelectronics", "infineon", "renesas", "maxim integrated", "onsemi",
+    "on semiconductor", "nexperia", "diodes incorporated", "rohm", "toshiba", "vishay",
+    "bosch", "sensirion", "winbond", "macronix", "micron", "cypress", "spansion", "xilinx",
+    "altera", "lattice", "silicon labs", "espressif", "nordic semiconductor", "wiznet",
+    "adafruit", "sparkfun", "fairchild", "linear technology", "intersil", "broadcom",
+    "molex", "samtec", "amphenol", "hirose", "littelfuse", "semtech", "gigadevice",
+    "melexis", "raspberry pi", "murata", "panasonic", "freescale", "motorola",
+    "national semiconductor", "dallas semiconductor", "ftdi", "richtek", "osram",
+]
+# Part-number stems of well-known parts (from memory), to catch a copied product.
+_PART_NUMBERS = [
+    r"74(?:hc|hct|lvc|ahc|act|als|ls)\d", r"pca9\d{2}", r"tca9\d{2}", r"bss138",
+    r"2n7002", r"at24c", r"24lc\d", r"w25q", r"stm32", r"atmega", r"esp32", r"ds3231",
+    r"pcf85\d{2}", r"mcp\d{3,4}", r"ads1\d{3}", r"sht[234]\d", r"bme\d{3}", r"lm75",
+    r"w5500", r"enc28j60", r"ili9\d{3}", r"st77\d{2}", r"adum\d", r"iso77\d",
+]
+_DENY = re.compile(r"\b(?:" + "|".join([re.escape(v) for v in _VENDORS] + _PART_NUMBERS)
+                   + r")", re.IGNORECASE)
+
+
+def test_deny_list_catches_what_it_should():
+    assert _DENY.search("an EEPROM like the AT24C02")
+    assert _DENY.search("made by Nexperia")
+    assert not _DENY.search("maximum, dissipation, micro-controller, 74 kHz")
+
+
+def test_no_real_manufacturer_or_product_names():
+    files = sorted(BUILTIN_DIR.rglob("*.toml"))
+    assert files
+    for path in files:
+        text = path.read_text(encoding="utf-8")
+        m = _DENY.search(text)
+        assert m is None, f"{path.relative_to(BUILTIN_DIR)}: {m.group(0)!r}"
+
+
+# ---------------------------------------------------------------------------
+# What each protocol needs
+# ---------------------------------------------------------------------------
+
+
+def test_every_i2c_part_has_sda_and_scl_with_c_in(lib):
+    seen = 0
+    for pid, part in lib.placeable().items():
+        for side, pins in _pin_groups(part):
+            fns = {p.function: p for p in pins.values()}
+            if not {"i2c-sda", "i2c-scl"} & set(fns):
+                continue
+            seen += 1
+            where = f"{pid} side {side}" if side else pid
+            assert {"i2c-sda", "i2c-scl"} <= set(fns), f"{where}: SDA without SCL or back"
+            for fn in ("i2c-sda", "i2c-scl"):
+                assert fns[fn].c_in is not None, f"{where}: {fn} has no c_in"
+    assert seen >= 15
+
+
+def _has_drive_data(pin: Pin) -> bool:
+    dc = all(getattr(pin, f) is not None for f in ("v_oh", "i_oh", "v_ol", "i_ol"))
+    return pin.r_out is not None or dc or bool(pin.edges)
+
+
+def test_every_push_pull_output_has_drive_data(lib):
+    for pid, part in lib.placeable().items():
+        for side, name, pin in _all_pins(part):
+            if pin.drive == "push-pull":
+                assert _has_drive_data(pin), f"{pid} {side or ''} {name}: no r_out, DC or edges"
+
+
+def test_every_open_drain_output_states_its_sink(lib):
+    for pid, part in lib.placeable().items():
+        for side, name, pin in _all_pins(part):
+            if pin.drive == "open-drain":
+                assert pin.v_ol is not None and pin.i_ol is not None, f"{pid} {side} {name}"
+
+
+def test_controllers_spi_outputs_have_edges_at_two_loads(lib):
+    for pid, part in lib.placeable().items():
+        if part.category != "controller":
+            continue
+        for fn in ("spi-sclk", "spi-copi", "spi-cs"):
+            name, pin = part.pin_for(fn)
+            assert pin.drive == "push-pull"
+            assert len({e.load.value for e in pin.edges}) >= 2, f"{pid} {name}"
+        t = part.timing
+        for field in ("f_max", "t_valid", "t_setup", "t_hold"):
+            assert getattr(t, field) is not None, f"{pid}: timing.{field}"
+        assert part.pin_for("spi-cipo")[1].drive == "input"
+
+
+def test_spi_peripherals_with_read_back_state_their_timing(lib):
+    for pid, part in lib.placeable().items():
+        if part.sides or part.category == "controller":
+            continue
+        got = part.pin_for("spi-cipo")
+        if got is None or got[1].drive != "push-pull":
+            continue
+        for field in ("f_max", "t_valid", "t_setup", "t_hold", "test_load"):
+            assert getattr(part.timing, field) is not None, f"{pid}: timing.{field}"
+
+
+def test_cables_carry_a_line_and_no_pins(lib):
+    for pid, part in lib.placeable().items():
+        if part.category == "cable":
+            assert part.line is not None and not part.pins and not part.sides, pid
+        else:
+            assert part.line is None, pid
+            assert part.pins or part.sides, f"{pid}: no pins"
+
+
+def test_bridges_are_described_on_both_sides(lib):
+    for pid, part in lib.placeable().items():
+        if part.bridge is None:
+            assert not part.sides, pid
+            continue
+        assert set(part.sides) == {"a", "b"}
+        for s in ("a", "b"):
+            assert part.sides[s].pins, f"{pid}: side {s} has no pins"
+            assert part.supply_for(s) is not None, f"{pid}: side {s} has no supply"
+
+
+# ---------------------------------------------------------------------------
+# Physics and the direction that hurts
+# ---------------------------------------------------------------------------
+
+# For a value with a typ beside it, which side of typ the stored limit must lie on
+# (DESIGN.md, part-class file: max capacitance, leakage, VOL, delays; min VIH, setup,
+# hold; VIL is a max threshold, guaranteed lower than the typical switching point).
+_ABOVE_TYP = {"c_in", "leakage", "v_ol", "v_ih", "t_valid", "t_pd", "t_setup", "t_hold",
+              "t_cs_setup", "t_cs_hold", "rise", "fall", "low_offset", "r_on", "v_gs_th",
+              "capacitance", "t_vd_dat", "t_vd_ack"}
+_BELOW_TYP = {"v_il"}
+
+
+def test_stored_values_are_the_limit_that_hurts(lib):
+    checked = 0
+    for pid, part in lib.parts.items():
+        for path, v in _values(part):
+            if v.typ is None:
+                continue
+            field = path[-1]
+            vdd = (part.supply_for(path[1] if path[0] == "sides" else None) or part.supply)
+            at = (lambda x, vdd=vdd: x.resolve(vdd.max.value) if hasattr(x, "resolve") else x)
+            stored, typ = at(v.value), at(v.typ)
+            where = f"{pid}: {'.'.join(map(str, path))}"
+            if field in _ABOVE_TYP:
+                assert stored >= typ, f"{where}: {v.text} is below its typ"
+                checked += 1
+            elif field in _BELOW_TYP:
+                assert stored <= typ, f"{where}: {v.text} is above its typ"
+                checked += 1
+    assert checked > 50
+
+
+def test_input_thresholds_and_output_levels_are_ordered(lib):
+    for pid, part in lib.parts.items():
+        for side, name, pin in _all_pins(part):
+            rng = _supply_range(part, side)
+            if rng is None:
+                continue
+            for vdd in rng:
+                if pin.v_il is not None and pin.v_ih is not None:
+                    assert pin.v_il.at(vdd) < pin.v_ih.at(vdd), f"{pid} {name} at {vdd} V"
+                if pin.v_ol is not None and pin.v_oh is not None:
+                    assert pin.v_ol.at(vdd) < pin.v_oh.at(vdd), f"{pid} {name} at {vdd} V"
+                if pin.abs_max is not None:
+                    # A pin must at least survive its own supply.
+                    assert pin.abs_max.at(vdd) >= vdd, f"{pid} {name} at {vdd} V"
+
+
+# derived from the RC step response: t(10-90) = ln 9 · RC, t(20-80) = ln 4 · RC
+# (REFERENCES.md, board traces [D]).  A driver's own edge only adds to it, so a stated
+# edge can never be faster than its r_out into the stated load.
+_RC_FACTOR = {"10-90": math.log(9.0), "20-80": math.log(4.0)}
+
+
+def test_edges_are_consistent_with_r_out_and_load(lib):
+    checked = 0
+    for pid, part in lib.parts.items():
+        for side, name, pin in _all_pins(part):
+            loads = sorted(pin.edges, key=lambda e: e.load.value)
+            for e in loads:
+                for t in (e.rise, e.fall):
+                    if t is None or pin.r_out is None:
+                        continue
+                    floor = _RC_FACTOR[e.levels] * pin.r_out.value * e.load.value
+                    assert t.value >= floor, f"{pid} {name}: {t.text} at {e.load.text}"
+                    checked += 1
+            # A heavier load never gives a faster edge.
+            for lo, hi in zip(loads, loads[1:]):
+                for attr in ("rise", "fall"):
+                    a, b = getattr(lo, attr), getattr(hi, attr)
+                    if a is not None and b is not None:
+                        assert b.value >= a.value, f"{pid} {name} {attr}"
+    assert checked > 40
+
+
+def test_r_out_within_what_the_dc_points_guarantee(lib):
+    # derived from Ohm's law: VOH at IOH bounds the pull-up resistance from above,
+    # (VDD - VOH)/IOH; VOL at IOL bounds the pull-down resistance, VOL/IOL.
+    for pid, part in lib.parts.items():
+        for side, name, pin in _all_pins(part):
+            rng = _supply_range(part, side)
+            if pin.r_out is None or rng is None:
+                continue
+            for vdd in rng:
+                if pin.v_oh is not None and pin.i_oh is not None:
+                    r_up = (vdd - pin.v_oh.at(vdd)) / pin.i_oh.value
+                    assert pin.r_out.value <= r_up, f"{pid} {name} at {vdd} V: {r_up:.1f} Ω"
+                if pin.v_ol is not None and pin.i_ol is not None:
+                    r_down = pin.v_ol.at(vdd) / pin.i_ol.value
+                    assert pin.r_out.value <= r_down, f"{pid} {name} at {vdd} V: {r_down:.1f} Ω"
+
+
+# published: SI definition of the metre, c = 299 792 458 m/s exactly.
+_C0 = 299_792_458.0
+
+
+def test_cable_classes_obey_the_lossless_line_relations(lib):
+    cables = {k: p for k, p in lib.placeable().items() if p.line is not None}
+    assert len(cables) >= 3
+    for pid, part in cables.items():
+        line = part.line
+        # Nothing travels faster than light: at least 1/c = 3.336 ns/m.
+        assert line.delay.value > 1.0 / _C0, pid
+        # derived from the lossless TEM line: Z0 = sqrt(L/C), delay = sqrt(LC), so
+        # delay = Z0 · C.  The class figures were chosen to agree within 2 %.
+        assert line.delay.value == pytest.approx(line.impedance.value * line.capacitance.value,
+                                                 rel=0.02), pid
+
+
+# published: I2C-bus specification UM10204 rev. 6, table 10: fSCL max and tVD;DAT max
+# per mode, and table 9: Ci max 10 pF, Ii max 10 µA, IOL min 3 mA (20 mA Fm+) at 0.4 V.
+UM10204_TABLE10_TVD_DAT = {100e3: 3.45e-6, 400e3: 0.9e-6, 1e6: 0.45e-6}
+UM10204_TABLE9_CI_MAX = 10e-12
+UM10204_TABLE9_II_MAX = 10e-6
+UM10204_TABLE9_IOL_FMPLUS = 20e-3
+
+
+def _i2c_targets(lib):
+    """Placeable I2C chips: classes extending the I2C target base, but not modules."""
+    return {k: p for k, p in lib.placeable().items()
+            if _extends(lib, k, "i2c-peripheral") and p.category != "module"}
+
+
+def test_i2c_targets_meet_the_i2c_specification(lib):
+    targets = _i2c_targets(lib)
+    assert len(targets) >= 6
+    for pid, part in targets.items():
+        f_max = part.timing.f_max.value
+        assert f_max in UM10204_TABLE10_TVD_DAT, f"{pid}: f_max {f_max} is not a mode limit"
+        assert part.timing.t_vd_dat.value <= UM10204_TABLE10_TVD_DAT[f_max], pid
+        for fn in ("i2c-sda", "i2c-scl"):
+            pin = part.pin_for(fn)[1]
+            assert pin.c_in.value <= UM10204_TABLE9_CI_MAX * (1 + 1e-9), f"{pid} {fn}"
+            assert pin.leakage.value <= UM10204_TABLE9_II_MAX * (1 + 1e-9), f"{pid} {fn}"
+        sda = part.pin_for("i2c-sda")[1]
+        if f_max == 1e6:
+            assert sda.i_ol.value >= UM10204_TABLE9_IOL_FMPLUS, f"{pid}: Fm+ needs 20 mA"
+
+
+def test_i2c_sink_meets_vol1_or_vol2(lib):
+    # published: UM10204 rev. 6, table 9: VOL1 0.4 V at 3 mA (VDD > 2 V);
+    # VOL2 0.2·VDD at 2 mA (VDD <= 2 V).
+    for pid, part in _i2c_targets(lib).items():
+        sda = part.pin_for("i2c-sda")[1]
+        vmax = part.supply.max.value
+        if vmax > 2.0:
+            assert sda.v_ol.at(vmax) == pytest.approx(0.4, abs=1e-9), pid
+            assert sda.i_ol.value >= 3e-3, pid
+        else:
+            assert sda.v_ol.at(vmax) <= 0.2 * vmax + 1e-9, pid
+            assert sda.i_ol.value >= 2e-3, pid
+
+
+# published: SMBus specification 3.1, table 4 (high-power DC): VIL 0.8 V max,
+# VIH 1.35 V min, VOL 0.4 V at 4 mA (100 kHz class), ILEAK-PIN 10 µA, CPIN 10 pF.
+SMBUS31_TABLE4 = {"v_il": 0.8, "v_ih": 1.35, "v_ol": 0.4, "i_ol": 4e-3,
+                  "leakage": 10e-6, "c_in": 10e-12}
+
+
+def test_smbus_devices_use_the_smbus_levels(lib):
+    smbus = {k: p for k, p in lib.placeable().items() if _extends(lib, k, "smbus-device")}
+    assert len(smbus) >= 2
+    for pid, part in smbus.items():
+        sda, scl = part.pin_for("i2c-sda")[1], part.pin_for("i2c-scl")[1]
+        for pin in (sda, scl):
+            assert pin.v_il.at(None) == pytest.approx(SMBUS31_TABLE4["v_il"], abs=1e-9)
+            assert pin.v_ih.at(None) == pytest.approx(SMBUS31_TABLE4["v_ih"], abs=1e-9)
+            assert pin.leakage.value <= SMBUS31_TABLE4["leakage"] * (1 + 1e-9)
+            assert pin.c_in.value <= SMBUS31_TABLE4["c_in"] * (1 + 1e-9)
+        assert sda.v_ol.at(None) == pytest.approx(SMBUS31_TABLE4["v_ol"], abs=1e-9)
+        assert sda.i_ol.value >= SMBUS31_TABLE4["i_ol"] * (1 - 1e-9)
+
+
+def test_offset_repeater_reads_low_below_its_own_offset(lib):
+    # A static-offset repeater must not read its own driven low as an external low
+    # (it would latch): its input threshold on the offset side lies below the offset.
+    repeaters = {k: p for k, p in lib.placeable().items()
+                 if p.bridge is not None and p.bridge.kind == "repeater"}
+    assert repeaters
+    for pid, part in repeaters.items():
+        s = part.bridge.low_offset_side
+        assert s is not None, pid
+        side = part.sides[s]
+        assert side.low_offset is not None, pid
+        # The format keeps the offset's max (and typ); the latch margin needs the low end,
+        # so the lowest figure known is used.
+        lowest = min(x for x in (side.low_offset.value, side.low_offset.typ) if x is not None)
+        for name, pin in side.pins.items():
+            assert pin.v_il.at(side.supply.min.value) < lowest, name
+
+
+def test_mosfet_translator_can_turn_on(lib):
+    # The gate sits at the side-a rail: the channel conducts only if VGS(th) max is
+    # below the lowest side-a supply.
+    fets = {k: p for k, p in lib.placeable().items()
+            if p.bridge is not None and p.bridge.kind == "mosfet"}
+    assert fets
+    for pid, part in fets.items():
+        assert part.bridge.r_on is not None and part.bridge.v_gs_th is not None, pid
+        assert part.bridge.v_gs_th.value < part.supply_for("a").min.value, pid
+        assert part.supply_for("a").max.value <= part.supply_for("b").max.value, pid
+
+
+def test_required_behaviours_are_represented(lib):
+    # The library must offer the cases the checks are built to catch.
+    parts = lib.placeable()
+    pins = [(pid, pin) for pid, p in parts.items() for _, _, pin in _all_pins(p)]
+    assert any(pin.pullup is not None for _, pin in pins)          # a carried pull-up
+    assert any(pin.off_tolerant for _, pin in pins)                # powered-off safe
+    assert any(pin.pullup_internal is not None for _, pin in pins)
+    relative_abs_max_1v8 = [pid for pid, p in parts.items()
+                            if p.supply is not None and p.supply.max.value < 2.0
+                            and any(pin.abs_max is not None and pin.abs_max.value.relative
+                                    for _, _, pin in _all_pins(p))]
+    assert relative_abs_max_1v8                                    # 1.8 V-only parts
+    kinds = {p.bridge.kind for p in parts.values() if p.bridge is not None}
+    assert kinds == {"repeater", "mosfet", "buffer", "isolator"}
