@@ -21,6 +21,7 @@ Accepted forms
 
 from __future__ import annotations
 
+import functools
 import math
 import re
 from dataclasses import dataclass
@@ -225,7 +226,12 @@ def _scaled(number: str, scale: float) -> float:
     """
     exponent = math.log10(scale)
     if exponent == round(exponent):
-        return float(Decimal(number).scaleb(int(round(exponent))))
+        try:
+            return float(Decimal(number).scaleb(int(round(exponent))))
+        except ArithmeticError:
+            # An exponent beyond Decimal's range ('1e9999999 pF'): the float product is
+            # then inf or 0, which the callers' finiteness check handles.
+            pass
     return float(number) * scale
 
 
@@ -333,8 +339,6 @@ def format_si(value, unit: str, digits: int = 3) -> str:
     >>> format_si(2.1349e-6, "s")
     '2.13 µs'
     """
-    from quantiphy import Quantity
-
     if value is None:
         return "—"
     if isinstance(value, (bool, np.bool_)):
@@ -348,13 +352,27 @@ def format_si(value, unit: str, digits: int = 3) -> str:
         return _per_length(value, unit, digits)
     if value == 0.0:
         return f"0 {unit}".strip()
-    q = Quantity(value, unit)
-    text = q.render(prec=digits - 1, strip_zeros=True, map_sf=Quantity.map_sf_to_greek)
+    q = _shown_quantity()(value, unit)
+    text = q.render(prec=digits - 1, strip_zeros=True)
     # quantiphy puts no space between number and a bare unit with a prefix ("2.2kΩ"): add one.
     m = re.match(rf"^({_NUMBER})\s*(.*)$", text)
     if m:
         return f"{m.group(1)} {m.group(2)}".strip()
     return text
+
+
+@functools.lru_cache(maxsize=1)
+def _shown_quantity():
+    """A quantiphy Quantity class that writes micro as µ (``render`` takes no ``map_sf``;
+    it is a class preference, set here on a subclass so other users of quantiphy are
+    not affected)."""
+    from quantiphy import Quantity
+
+    class _Shown(Quantity):
+        pass
+
+    _Shown.set_prefs(map_sf=Quantity.map_sf_to_greek)
+    return _Shown
 
 
 def _per_length(value: float, unit: str, digits: int) -> str:

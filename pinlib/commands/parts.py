@@ -1,0 +1,538 @@
+"""``pinlib parts``: list, show, create, record into and check the parts library.
+
+The library modules (and pydantic with them) are imported inside each action, so that
+``pinlib --help`` and the other commands do not pay for them.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import sys
+from pathlib import Path
+
+from pinlib.errors import InputError
+
+__all__ = ["add_parser", "run"]
+
+HELP = "list, show, create, record into and check library parts"
+
+EPILOG = """\
+examples:
+  pinlib parts list --function i2c-sda --supply 3.3V
+  pinlib parts show eeprom-i2c
+  pinlib parts new eeprom-acme --from eeprom-i2c --into parts
+  pinlib parts record eeprom-acme sda.c_in "6 pF" --source "rev C, table 7.5"
+  pinlib parts check parts
+  pinlib parts schema --output part.schema.json
+
+Team folders come from PINLIB_LIBRARY (separated by '%s') and --library; a team part
+with the id of a built-in part overrides it.
+""" % os.pathsep
+
+_EXAMPLES = {
+    "list": """\
+examples:
+  pinlib parts list
+  pinlib parts list --category memory --supply 1.8V
+  pinlib parts list --function spi-sclk --json
+
+A team part that overrides a built-in one is marked 'team, overrides built-in';
+abstract classes (meant to be extended, not placed) are marked 'abstract'.
+""",
+    "show": """\
+examples:
+  pinlib parts show eeprom-i2c
+  pinlib parts show eeprom-acme --library parts --json
+
+Each value is shown with its basis and source, and the part (and file) it was
+inherited from when that is not the part itself.
+""",
+    "new": """\
+examples:
+  pinlib parts new eeprom-acme --from eeprom-i2c --into parts
+  pinlib parts new adc-x --from i2c-peripheral --title "12-bit ADC, I2C" --library parts
+
+Without --into the part goes into the first --library folder, else the first
+PINLIB_LIBRARY folder.
+""",
+    "record": """\
+examples:
+  pinlib parts record eeprom-acme sda.c_in "6 pF" --source "rev C, table 7.5"
+  pinlib parts record eeprom-acme timing.f_max "1 MHz" --source "rev C, p. 4"
+  pinlib parts record eeprom-acme supply.min "1.6 V" --basis measured --source "lab, 3 samples"
+  pinlib parts record eeprom-acme sda.v_ol "0.4 V" --typ "0.15 V" --source "rev C, table 7.5"
+
+FIELD is PIN.FIELD (sda.c_in), timing.FIELD, supply.min|max, sides.a.PIN.FIELD...
+A negative VALUE goes after '--':  pinlib parts record X -- sda.v_il "-0.3 V" --source S
+The file keeps its comments and layout; a value that does not validate is refused and
+the file is left as it was. Built-in parts are never written: make a team part first.
+""",
+    "check": """\
+examples:
+  pinlib parts check               (the whole merged library)
+  pinlib parts check parts         (every file of one folder, against the library)
+
+Exit code 0 when every file is valid, 1 when any problem is found.
+""",
+    "schema": """\
+examples:
+  pinlib parts schema --output part.schema.json
+  pinlib parts schema | head
+
+Point an editor with TOML schema support at the file to validate and complete part
+files (for example a '#:schema ./part.schema.json' first line, where supported).
+""",
+}
+
+
+def add_parser(subparsers) -> None:
+    common = argparse.ArgumentParser(add_help=False)
+    common.add_argument("--library", metavar="DIR", action="append", default=[],
+                        help="a team library folder (repeatable; after PINLIB_LIBRARY)")
+    parser = subparsers.add_parser("parts", help=HELP, description=HELP.capitalize() + ".",
+                                   epilog=EPILOG,
+                                   formatter_class=argparse.RawDescriptionHelpFormatter)
+    sub = parser.add_subparsers(dest="parts_command", metavar="ACTION")
+
+    def action(name, help_text, run):
+        p = sub.add_parser(name, help=help_text, description=help_text[0].upper() + help_text[1:]
+                           + ".", epilog=_EXAMPLES[name], parents=[common],
+                           formatter_class=argparse.RawDescriptionHelpFormatter)
+        p.set_defaults(run=run)
+        return p
+
+    p = action("list", "list the parts of the library", _run_list)
+    p.add_argument("--category", help="only parts of this category")
+    p.add_argument("--function", help="only parts with a pin of this function (e.g. i2c-sda)")
+    p.add_argument("--supply", metavar="VOLTAGE",
+                   help="only parts whose supply range contains this voltage (e.g. 3.3V)")
+    p.add_argument("--json", action="store_true", help="print JSON instead of a table")
+
+    p = action("show", "show a resolved part with the provenance of every value", _run_show)
+    p.add_argument("id", metavar="ID", help="the part id")
+    p.add_argument("--json", action="store_true", help="print JSON instead of a table")
+
+    p = action("new", "create a team part that extends a class", _run_new)
+    p.add_argument("id", metavar="ID", help="the new part's id ([a-z0-9-]+)")
+    p.add_argument("--from", dest="from_class", metavar="CLASS", required=True,
+                   help="the part or class to extend")
+    p.add_argument("--into", metavar="FOLDER", help="the team library folder to write into")
+    p.add_argument("--title", help="the new part's title (default: the class's)")
+    p.add_argument("--source", default="",
+                   help="the part's document (e.g. 'datasheet rev C, 2024-03')")
+
+    p = action("record", "record one value with its source into a team part", _run_record)
+    p.add_argument("id", metavar="ID", help="the team part")
+    p.add_argument("field", metavar="FIELD", help="PIN.FIELD, timing.FIELD, supply.min ...")
+    p.add_argument("value", metavar="VALUE", help="the value with its unit, e.g. '6 pF'")
+    p.add_argument("--source", required=True, help="document, revision, table or page")
+    p.add_argument("--basis", choices=["datasheet", "measured", "estimate"],
+                   default="datasheet", help="how the value was obtained (default: datasheet)")
+    p.add_argument("--typ", help="a typical value to keep beside the limit")
+
+    p = action("check", "check part files and report every problem", _run_check)
+    p.add_argument("folder", metavar="FOLDER", nargs="?",
+                   help="check the files of this folder (default: the whole library)")
+    p.add_argument("--json", action="store_true", help="print the problems as JSON")
+
+    p = action("schema", "print the JSON Schema of part files", _run_schema)
+    p.add_argument("--output", metavar="FILE", help="write it to FILE instead")
+
+    parser.set_defaults(run=lambda args: _no_action(parser))
+
+
+def run(args) -> int:
+    """Run the parsed ``pinlib parts`` command; return its exit code."""
+    return args.run(args)
+
+
+def _no_action(parser) -> int:
+    parser.print_help()
+    return 2
+
+
+# --- helpers ---------------------------------------------------------------------------
+
+def _load(args, extra=()):
+    from pinlib.library.loader import load_library
+
+    return load_library(list(args.library) + list(extra))
+
+
+def _warn_problems(lib) -> None:
+    if lib.problems:
+        n = len(lib.problems)
+        print(f"pinlib: warning: {n} problem{'s' if n != 1 else ''} in the library "
+              "(run 'pinlib parts check'); parts with problems are left out", file=sys.stderr)
+
+
+def _closest(word, choices) -> str | None:
+    import difflib
+
+    near = difflib.get_close_matches(word, list(choices), n=3, cutoff=0.4)
+    return ("closest: " + ", ".join(near)) if near else None
+
+
+def _choice(value, choices, field):
+    if value is not None and value not in choices:
+        raise InputError("not one of the allowed values", field=field, value=value,
+                         expected="one of " + ", ".join(choices), hint=_closest(value, choices))
+
+
+def _supplies(part) -> list[tuple[str, object]]:
+    """(label, Supply) pairs: the part's own, else one per side of a bridge."""
+    if part.supply is not None:
+        return [("", part.supply)]
+    return [(f"{name} ", side.supply) for name, side in sorted(part.sides.items())
+            if side.supply is not None]
+
+
+def _range_text(supply) -> str:
+    from pinlib.quantity import format_si
+
+    lo, hi = format_si(supply.min.value, "V"), format_si(supply.max.value, "V")
+    return f"{lo.removesuffix(' V')}-{hi}" if lo.endswith(" V") and hi.endswith(" V") else \
+        f"{lo}-{hi}"
+
+
+def _kind(lib, pid) -> str:
+    pf = lib.files[pid]
+    text = "built-in" if pf.builtin else (
+        "team, overrides built-in" if pid in lib.overrides else "team")
+    if lib.parts[pid].abstract:
+        text += ", abstract"
+    return text
+
+
+def _table(rows: list[list[str]], header: list[str]) -> str:
+    widths = [max(len(str(r[i])) for r in rows + [header]) for i in range(len(header))]
+    lines = ["  ".join(str(c).ljust(w) for c, w in zip(header, widths)).rstrip(),
+             "  ".join("-" * w for w in widths)]
+    for r in rows:
+        lines.append("  ".join(str(c).ljust(w) for c, w in zip(r, widths)).rstrip())
+    return "\n".join(lines)
+
+
+def _rel(path) -> str:
+    """The path relative to the working folder when it lies inside it."""
+    try:
+        rel = os.path.relpath(path)
+    except ValueError:  # another drive (Windows)
+        return str(path)
+    return str(path) if rel.startswith("..") else rel
+
+
+# --- list ------------------------------------------------------------------------------
+
+def _run_list(args) -> int:
+    from pinlib.library.schema import CATEGORIES, FUNCTIONS
+    from pinlib.quantity import parse
+
+    _choice(args.category, CATEGORIES, "--category")
+    _choice(args.function, FUNCTIONS, "--function")
+    volts = parse(args.supply, "V", field="--supply") if args.supply is not None else None
+    lib = _load(args)
+    _warn_problems(lib)
+    chosen = []
+    for pid in sorted(lib.parts):
+        part = lib.parts[pid]
+        if args.category and part.category != args.category:
+            continue
+        if args.function and args.function not in part.functions():
+            continue
+        if volts is not None and not any(s.min.value <= volts <= s.max.value
+                                         for _, s in _supplies(part)):
+            continue
+        chosen.append(part)
+    if args.json:
+        out = []
+        for part in chosen:
+            out.append({
+                "id": part.id, "title": part.title, "category": part.category,
+                "abstract": part.abstract,
+                "supply": [{"side": label.strip() or None, "min": s.min.value,
+                            "max": s.max.value, "unit": "V"} for label, s in _supplies(part)],
+                "functions": sorted(part.functions()),
+                "file": str(lib.files[part.id].path),
+                "builtin": lib.files[part.id].builtin,
+                "overrides": str(lib.overrides[part.id]) if part.id in lib.overrides else None,
+            })
+        print(json.dumps(out, indent=2, ensure_ascii=False))
+        return 0
+    if not chosen:
+        print("no part matches" if lib.parts else "the library is empty")
+        return 0
+    rows = [[p.id, p.category,
+             ", ".join(label + _range_text(s) for label, s in _supplies(p)) or "-",
+             ", ".join(sorted(p.functions())) or "-", _kind(lib, p.id), p.title]
+            for p in chosen]
+    print(_table(rows, ["id", "category", "supply", "pin functions", "kind", "title"]))
+    return 0
+
+
+# --- show ------------------------------------------------------------------------------
+
+def _walk(obj, path=()):
+    """Yield (path, Sourced) for every value of a part, and (path, x) for plain fields."""
+    from pydantic import BaseModel
+
+    from pinlib.library.values import Sourced
+
+    if isinstance(obj, Sourced):
+        yield path, obj
+    elif isinstance(obj, BaseModel):
+        for name in type(obj).model_fields:
+            value = getattr(obj, name)
+            if value is None or (isinstance(value, (dict, tuple)) and not value):
+                continue
+            yield from _walk(value, path + (name,))
+    elif isinstance(obj, dict):
+        for key, value in obj.items():
+            yield from _walk(value, path + (str(key),))
+    elif isinstance(obj, tuple):
+        for i, value in enumerate(obj):
+            yield from _walk(value, path + (i,))
+    else:
+        yield path, obj
+
+
+_HEADER_FIELDS = {"format", "id", "title", "category", "extends", "abstract", "description"}
+
+
+def _dotted(path) -> str:
+    out = ""
+    for p in path:
+        out += f"[{p}]" if isinstance(p, int) else (f".{p}" if out else str(p))
+    return out
+
+
+def _show_data(lib, pid) -> dict:
+    from pinlib.library.values import Sourced
+    from pinlib.quantity import Threshold
+
+    part = lib.get(pid)
+    values, attributes = [], []
+    for path, item in _walk(part):
+        if path and path[0] in _HEADER_FIELDS | {"provenance"}:
+            continue
+        if not isinstance(item, Sourced):
+            attributes.append({"field": _dotted(path), "value": item})
+            continue
+        origin = item.origin or pid
+        own_basis = item.basis
+        part_basis = None
+        if own_basis is None:
+            prov = lib.files[origin].raw.get("provenance") if origin in lib.files else None
+            part_basis = (prov or {}).get("basis") if isinstance(prov, dict) else None
+            part_basis = part_basis or part.provenance.basis
+        entry = {
+            "field": _dotted(path),
+            "text": item.text or str(item.value),
+            "unit": item.unit,
+            "basis": own_basis or part_basis,
+            "basis_from_part": own_basis is None,
+            "source": item.source,
+            "typ": None if item.typ is None else (
+                str(item.typ) if isinstance(item.typ, Threshold) else item.typ),
+            "derived": item.derived,
+            "origin": origin,
+            "origin_file": str(lib.files[origin].path) if origin in lib.files else None,
+            "inherited": origin != pid,
+        }
+        if isinstance(item.value, Threshold):
+            entry.update(scale=item.value.scale, offset=item.value.offset)
+        else:
+            entry["value"] = item.value
+        values.append(entry)
+    prov = part.provenance
+    return {
+        "id": part.id, "title": part.title, "category": part.category,
+        "abstract": part.abstract, "description": part.description,
+        "file": str(lib.files[pid].path), "builtin": lib.files[pid].builtin,
+        "overrides": str(lib.overrides[pid]) if pid in lib.overrides else None,
+        "chain": [{"id": c, "file": str(lib.files[c].path)} for c in lib.chain(pid)],
+        "provenance": {"basis": prov.basis, "source": prov.source,
+                       "recorded": prov.recorded.isoformat() if prov.recorded else None,
+                       "by": prov.by},
+        "attributes": attributes,
+        "values": values,
+    }
+
+
+def _typ_text(entry) -> str:
+    from pinlib.quantity import format_si
+
+    typ = entry["typ"]
+    if typ is None:
+        return ""
+    return typ if isinstance(typ, str) else format_si(typ, entry["unit"])
+
+
+def _run_show(args) -> int:
+    from pinlib.quantity import format_si
+
+    lib = _load(args)
+    data = _show_data(lib, args.id)
+    if args.json:
+        print(json.dumps(data, indent=2, ensure_ascii=False))
+        return 0
+    print(f"{data['id']}: {data['title']}")
+    facts = [f"category {data['category']}"]
+    if data["abstract"]:
+        facts.append("abstract class (extend it; not placed on a board)")
+    facts.append("built-in" if data["builtin"] else "team part")
+    if data["overrides"]:
+        facts.append(f"overrides the built-in {_rel(data['overrides'])}")
+    print("  " + "; ".join(facts))
+    print("  file: " + _rel(data["file"]))
+    if len(data["chain"]) > 1:
+        print("  extends: " + " <- ".join(c["id"] for c in data["chain"]))
+    prov = data["provenance"]
+    bits = [prov["basis"]] + [b for b in (prov["source"], prov["recorded"] and
+                                          f"recorded {prov['recorded']}", prov["by"]) if b]
+    print("  provenance: " + ", ".join(bits))
+    if data["description"]:
+        print("  " + data["description"])
+    if data["attributes"]:
+        print()
+        print(_table([[a["field"], str(a["value"]).lower() if isinstance(a["value"], bool)
+                       else str(a["value"])] for a in data["attributes"]], ["field", "setting"]))
+    print()
+    rows = []
+    for v in data["values"]:
+        shown = v["text"]
+        unit = v["unit"]
+        written_in_unit = (f"{unit.split('/')[0]}/" in shown if "/" in unit
+                           else shown.rstrip().endswith(unit))
+        if "value" in v and not written_in_unit:
+            # '4k7', '10 ohm': add the value as pinlib reads it
+            si = format_si(v["value"], v["unit"])
+            if si.replace(" ", "") != shown.replace(" ", ""):
+                shown = f"{shown} ({si})"
+        basis = v["basis"] or ""
+        if v["basis_from_part"] and basis:
+            basis += " (part)"
+        if v["derived"]:
+            shown += "  [derived]"
+        origin = "" if not v["inherited"] else f"{v['origin']} ({_rel(v['origin_file'])})"
+        rows.append([v["field"], shown, _typ_text(v), basis, v["source"] or "", origin])
+    if rows:
+        print(_table(rows, ["field", "value", "typ", "basis", "source", "inherited from"]))
+    else:
+        print("(no values)")
+    print()
+    print("basis '(part)': the value has none of its own and takes its part's provenance.")
+    return 0
+
+
+# --- new -------------------------------------------------------------------------------
+
+def _default_folder(args) -> Path:
+    if args.library:
+        return Path(args.library[0])
+    env = [p for p in os.environ.get("PINLIB_LIBRARY", "").split(os.pathsep) if p]
+    if env:
+        return Path(env[0])
+    raise InputError("no folder to write the new part into", field="--into",
+                     hint="give --into FOLDER, or a --library folder or PINLIB_LIBRARY")
+
+
+def _run_new(args) -> int:
+    from pinlib.library.record import new_part
+
+    folder = Path(args.into) if args.into else _default_folder(args)
+    lib = _load(args)
+    path = new_part(lib, args.id, args.from_class, folder, title=args.title,
+                    source=args.source)
+    print(f"created {_rel(path)} (extends {args.from_class})")
+    known = [f.resolve() for f in lib.folders]
+    if folder.resolve() not in known:
+        print(f"note: {_rel(folder)} is not a library folder yet: pass --library {folder} or "
+              "add it to PINLIB_LIBRARY", file=sys.stderr)
+    print(f"next: pinlib parts record {args.id} PIN.FIELD \"VALUE\" --source \"...\""
+          + (f" --library {folder}" if folder.resolve() not in known else ""))
+    return 0
+
+
+# --- record ----------------------------------------------------------------------------
+
+def _run_record(args) -> int:
+    from pinlib.library.fields import resolve_path
+    from pinlib.library.record import record_value
+
+    lib = _load(args)
+    path = record_value(lib, args.id, args.field, args.value, args.source,
+                        basis=args.basis, typ=args.typ)
+    keys, _ = resolve_path(args.field)
+    typ = f", typ {args.typ}" if args.typ else ""
+    print(f"recorded {'.'.join(keys)} = {args.value}{typ} ({args.basis}: {args.source}) "
+          f"in {_rel(path)}")
+    return 0
+
+
+# --- check -----------------------------------------------------------------------------
+
+def _under(path, folder: Path) -> bool:
+    try:
+        Path(path).resolve().relative_to(folder)
+    except ValueError:
+        return False
+    return True
+
+
+def _run_check(args) -> int:
+    from pinlib.errors import LibraryError
+
+    if args.folder is None:
+        lib = _load(args)
+        problems = list(lib.problems)
+        scope = "the library"
+        n_files = len(lib.files)
+    else:
+        folder = Path(args.folder)
+        if not folder.is_dir():
+            raise InputError("not a folder", file=str(folder), field="FOLDER")
+        lib = _load(args, extra=[folder])
+        root = folder.resolve()
+        problems = [p for p in lib.problems if p.file and _under(p.file, root)]
+        # A part of the folder that does not load because of a file it extends.
+        for pid, pf in lib.files.items():
+            if pid in lib.parts or not _under(pf.path, root):
+                continue
+            if any(p.file and Path(p.file).resolve() == pf.path.resolve() for p in problems):
+                continue
+            chain = {str(lib.files[c].path) for c in lib.chain(pid)}
+            related = [p for p in lib.problems if p.file in chain and p not in problems]
+            problems.append(LibraryError("the part does not load", file=str(pf.path),
+                                         field="extends", hint="a problem in a file it extends"))
+            problems += related
+        n_files = len({str(p) for p in folder.rglob("*.toml")})
+        scope = _rel(folder)
+    if args.json:
+        print(json.dumps({"checked": scope, "files": n_files,
+                          "problems": [p.to_dict() for p in problems]},
+                         indent=2, ensure_ascii=False))
+    else:
+        for p in problems:
+            print(p.message)
+        n = len(problems)
+        verdict = "no problems" if not n else f"{n} problem{'s' if n != 1 else ''}"
+        print(f"checked {n_files} file{'s' if n_files != 1 else ''} in {scope}: {verdict}")
+    return 1 if problems else 0
+
+
+# --- schema ----------------------------------------------------------------------------
+
+def _run_schema(args) -> int:
+    from pinlib.library.jsonschema import part_json_schema
+    from pinlib.tomlfile import atomic_write
+
+    text = json.dumps(part_json_schema(), indent=2, ensure_ascii=False) + "\n"
+    if args.output:
+        atomic_write(args.output, text)
+        print(f"wrote {_rel(args.output)}")
+    else:
+        sys.stdout.write(text)
+    return 0

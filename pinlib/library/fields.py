@@ -1,0 +1,203 @@
+"""What each field of the part format holds, read from the pydantic models.
+
+The recorder needs to know which dotted paths take a value (``pins.sda.c_in``) and the
+JSON Schema export needs the unit of each of them.  Both are read here from the models
+in :mod:`pinlib.library.schema` rather than kept in a second list that could drift: a
+value field is one whose validator turns text into a
+:class:`~pinlib.library.values.Sourced`, and its unit is found by offering the
+validator one example of each unit of :data:`pinlib.quantity.UNITS`.
+"""
+
+from __future__ import annotations
+
+import difflib
+import functools
+import re
+import typing
+from dataclasses import dataclass
+
+from pydantic import BaseModel, BeforeValidator
+
+from pinlib.errors import LibraryError, PinlibError
+from pinlib.library import schema
+from pinlib.library.values import Sourced
+from pinlib.quantity import UNITS, Threshold
+
+__all__ = [
+    "ValueKind",
+    "value_kind",
+    "submodel",
+    "mapping_of",
+    "sequence_of",
+    "models",
+    "glossary",
+    "resolve_path",
+]
+
+
+@dataclass(frozen=True)
+class ValueKind:
+    """A field that holds a value: ``level`` (may follow VDD) or ``quantity``."""
+
+    kind: str
+    unit: str
+
+
+def _flat_args(annotation) -> list:
+    """The annotation and everything nested in it (Optional, Annotated, dict, tuple)."""
+    out = [annotation]
+    for arg in typing.get_args(annotation):
+        out += _flat_args(arg)
+    extra = getattr(annotation, "__metadata__", ())
+    return out + list(extra)
+
+
+def _validator(info) -> BeforeValidator | None:
+    for item in list(info.metadata) + _flat_args(info.annotation):
+        if isinstance(item, BeforeValidator):
+            return item
+    return None
+
+
+@functools.lru_cache(maxsize=None)
+def _probe(func) -> ValueKind | None:
+    try:
+        got = func("0.7 VDD")
+    except PinlibError:
+        got = None
+    if isinstance(got, Sourced) and isinstance(got.value, Threshold):
+        return ValueKind("level", "V")
+    for unit, (_, example) in UNITS.items():
+        try:
+            got = func(example)
+        except PinlibError:
+            continue
+        if isinstance(got, Sourced) and got.unit == unit:
+            return ValueKind("quantity", unit)
+    return None
+
+
+def value_kind(info) -> ValueKind | None:
+    """The kind of value a pydantic field holds, or None when it holds no Sourced value."""
+    if Sourced not in _flat_args(info.annotation):
+        return None
+    bv = _validator(info)
+    return _probe(bv.func) if bv is not None else None
+
+
+def _model_in(annotation) -> type[BaseModel] | None:
+    for arg in _flat_args(annotation):
+        if isinstance(arg, type) and issubclass(arg, BaseModel):
+            return arg
+    return None
+
+
+def submodel(info) -> type[BaseModel] | None:
+    """The model of a nested table (``supply``, ``timing``), None for maps and lists."""
+    origin = typing.get_origin(info.annotation)
+    if origin in (dict, tuple, list):
+        return None
+    return _model_in(info.annotation)
+
+
+def mapping_of(info) -> type[BaseModel] | None:
+    """``dict[str, Pin]`` -> Pin (tables of named items: ``pins``, ``sides``)."""
+    if typing.get_origin(info.annotation) is dict:
+        return _model_in(typing.get_args(info.annotation)[1])
+    return None
+
+
+def sequence_of(info) -> type[BaseModel] | None:
+    """``tuple[Edge, ...]`` -> Edge (arrays of tables: ``edges``)."""
+    if typing.get_origin(info.annotation) in (tuple, list):
+        return _model_in(typing.get_args(info.annotation)[0])
+    return None
+
+
+def models(root: type[BaseModel] = schema.Part) -> list[type[BaseModel]]:
+    """Every model reachable from ``root``, root first."""
+    seen: list[type[BaseModel]] = [root]
+    for model in seen:
+        for info in model.model_fields.values():
+            sub = submodel(info) or mapping_of(info) or sequence_of(info)
+            if sub is not None and sub not in seen:
+                seen.append(sub)
+    return seen
+
+
+_GLOSSARY_ROW = re.compile(r"^([a-z_]+)\s{2,}(.+?)\s{2,}(\S+)\s*$")
+
+
+@functools.lru_cache(maxsize=None)
+def glossary() -> dict[str, str]:
+    """Field name -> meaning, from the glossary table of the schema module's docstring."""
+    out = {}
+    for line in (schema.__doc__ or "").splitlines():
+        m = _GLOSSARY_ROW.match(line.strip())
+        if m and m.group(1) != "name":
+            out[m.group(1)] = m.group(2)
+    return out
+
+
+def _close(word: str, choices) -> str | None:
+    near = difflib.get_close_matches(word, list(choices), n=3, cutoff=0.5)
+    return ("closest: " + ", ".join(near)) if near else None
+
+
+def resolve_path(text: str) -> tuple[tuple[str, ...], ValueKind]:
+    """Turn ``"sda.c_in"``, ``"timing.f_max"``, ``"supply.min"`` into a key path.
+
+    A first part that is not a top-level field names a pin (``sda.c_in`` is
+    ``pins.sda.c_in``); inside ``sides.a`` the same shorthand applies.
+
+    Raises
+    ------
+    LibraryError
+        When the path does not end at a field that takes a value.
+    """
+    if not isinstance(text, str) or not text.strip():
+        raise LibraryError("a field path is needed", field="field", value=text,
+                           expected="PIN.FIELD, timing.FIELD or supply.min/max")
+    parts = [p.strip() for p in text.strip().split(".")]
+    model: type[BaseModel] = schema.Part
+    path: list[str] = []
+    i = 0
+    while i < len(parts):
+        key = parts[i]
+        fields = model.model_fields
+        pins_here = "pins" in fields
+        if key not in fields and pins_here:
+            parts.insert(i, "pins")  # shorthand: a pin name
+            continue
+        if key not in fields:
+            raise LibraryError("unknown field", field=".".join(path + [key]), value=text,
+                               expected="one of " + ", ".join(
+                                   n for n, f in fields.items() if value_kind(f)),
+                               hint=_close(key, fields))
+        info = fields[key]
+        path.append(key)
+        kind = value_kind(info)
+        if kind is not None:
+            if i != len(parts) - 1:
+                raise LibraryError("a value field has no sub-fields", field=".".join(path),
+                                   value=text)
+            return tuple(path), kind
+        inner = mapping_of(info)
+        if inner is not None:
+            if i + 1 >= len(parts) or not parts[i + 1]:
+                raise LibraryError("the path stops at a table of named items",
+                                   field=".".join(path), value=text,
+                                   expected=f"{key}.NAME.FIELD")
+            path.append(parts[i + 1])
+            model, i = inner, i + 2
+            continue
+        sub = submodel(info)
+        if sub is not None and i + 1 < len(parts):
+            model, i = sub, i + 1
+            continue
+        what = "a list (edit the file by hand)" if sequence_of(info) else (
+            "a table" if sub is not None else "not a value with a unit")
+        raise LibraryError(f"this field takes no recorded value: {what}", field=".".join(path),
+                           value=text, expected="a field such as c_in, v_il, timing.f_max")
+    raise LibraryError("the path stops before a field", field=".".join(path), value=text,
+                       expected="PIN.FIELD, timing.FIELD or supply.min/max")

@@ -1,0 +1,474 @@
+"""Writing to team part files: a new part that extends a class, and one recorded value.
+
+Both write through :func:`pinlib.tomlfile.atomic_write` (a temporary file in the same
+folder, then one ``os.replace``), so a reader, or a process killed half-way, sees the
+old file or the new one and never a truncated one.  :func:`record_value` holds
+:func:`pinlib.tomlfile.file_lock` from reading the file to replacing it, and reads the
+file afresh inside the lock, so two processes recording into one file at once take
+turns and neither loses the other's value.
+
+Values are written with tomlkit, which keeps the file's comments, key order and
+layout; only the one value changes.  Before anything is written the whole part, with
+the new value merged through its ``extends`` chain, must validate; otherwise the error
+names the field and what was expected and the file is left as it was.  Files of the
+built-in library are never written.
+"""
+
+from __future__ import annotations
+
+import copy
+import datetime as _dt
+import difflib
+import re
+import sys
+from pathlib import Path
+
+import tomlkit
+from tomlkit.items import InlineTable, Table
+
+from pinlib.errors import InputError, LibraryError, PinlibError, WriteError
+from pinlib.library import loader
+from pinlib.library.fields import resolve_path
+from pinlib.library.schema import FORMAT
+from pinlib.tomlfile import atomic_write, file_lock, line_index, line_of
+
+if sys.version_info >= (3, 11):
+    import tomllib
+else:  # pragma: no cover - exercised on 3.10 only
+    import tomli as tomllib
+
+__all__ = ["RECORD_BASES", "new_part", "record_value"]
+
+#: The bases a recorded value may carry ("generic" is for the built-in classes,
+#: "derived" is set by pinlib itself).
+RECORD_BASES = ("datasheet", "measured", "estimate")
+
+_ID = re.compile(r"^[a-z0-9][a-z0-9-]*$")
+
+
+def _inside_builtin(path: Path) -> bool:
+    builtin = Path(loader.BUILTIN_DIR).resolve()
+    try:
+        Path(path).resolve().relative_to(builtin)
+    except ValueError:
+        return False
+    return True
+
+
+def _refuse_builtin(path: Path, what: str, hint: str) -> None:
+    if _inside_builtin(path):
+        raise LibraryError(f"the built-in library is not written to ({what})", file=str(path),
+                           hint=hint)
+
+
+def _check_id(new_id: object) -> str:
+    if not isinstance(new_id, str) or not _ID.match(new_id) or len(new_id) > 64:
+        raise LibraryError("not a valid part id", field="id", value=new_id,
+                           expected="lowercase letters, digits and '-', starting with a letter "
+                                    "or digit, at most 64 characters (e.g. 'eeprom-i2c-acme')")
+    return new_id
+
+
+def _toml_string(text: str) -> str:
+    return tomlkit.string(text).as_string()
+
+
+def new_part(library: loader.Library, new_id: str, from_class: str,
+             into_folder: str | Path, title: str | None = None, *,
+             basis: str = "datasheet", source: str = "") -> Path:
+    """Create a team part file that extends a class of the library.
+
+    Parameters
+    ----------
+    library : Library
+        The merged library (to find the class and check that the id is free).
+    new_id : str
+        The new part's id, ``[a-z0-9-]+``.
+    from_class : str
+        The id of the part or class to extend.
+    into_folder : path
+        The team library folder to write ``<new_id>.toml`` into (created if missing).
+    title : str, optional
+        The new part's title; the class's title when omitted.
+    basis, source : str
+        The part's provenance: how its own values were obtained and from what.
+
+    Returns
+    -------
+    Path
+        The file written.
+
+    Raises
+    ------
+    LibraryError
+        An id that exists or is malformed, an unknown class (with the closest ids), or
+        a folder inside the built-in library.
+    WriteError
+        When the folder or file cannot be written.
+    """
+    _check_id(new_id)
+    if new_id in library.files:
+        raise LibraryError("a part with this id exists", field="id", value=new_id,
+                           file=str(library.files[new_id].path),
+                           hint="choose another id, or record values into that part")
+    parent = library.get(from_class, field="extends")
+    if basis not in RECORD_BASES + ("generic",):
+        raise InputError("unknown basis", field="basis", value=basis,
+                         expected="one of " + ", ".join(RECORD_BASES + ("generic",)))
+    folder = Path(into_folder)
+    _refuse_builtin(folder, "a new part belongs in a team folder",
+                    "name a team library folder with --into")
+    if folder.exists() and not folder.is_dir():
+        raise WriteError("not a folder", file=str(folder))
+    try:
+        folder.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise WriteError(f"cannot create the folder: {exc.strerror}", file=str(folder)) from None
+    target = folder / f"{new_id}.toml"
+    today = _dt.date.today()
+    title = parent.title if title is None else title
+    text = "\n".join([
+        f"# {title}",
+        f"# A team part that extends '{from_class}' and inherits all of its values.",
+        "# Record this part's own values with their sources, e.g.",
+        f"#   pinlib parts record {new_id} PIN.FIELD \"VALUE\" "
+        "--source \"document, revision, table\"",
+        f"format = {_toml_string(FORMAT)}",
+        f"id = {_toml_string(new_id)}",
+        f"title = {_toml_string(title)}",
+        f"category = {_toml_string(parent.category)}",
+        f"extends = {_toml_string(from_class)}",
+        f"provenance = {{ basis = {_toml_string(basis)}, source = {_toml_string(source)}, "
+        f"recorded = {today.isoformat()} }}",
+        "",
+    ])
+    with file_lock(target):
+        if target.exists():
+            raise LibraryError("the file exists", file=str(target),
+                               hint="choose another id or folder")
+        _validate(library, new_id, target, text)
+        atomic_write(target, text)
+    return target
+
+
+def _validate(library: loader.Library, part_id: str, path: Path, text: str,
+              field: str | None = None, old_text: str | None = None):
+    """Validate ``part_id`` as if its file held ``text``; raise the first problem."""
+    raw = tomllib.loads(text)
+    files = dict(library.files)
+    files[part_id] = loader.PartFile(Path(path), raw, text, False)
+    try:
+        part = loader._resolve(part_id, files, {})
+    except loader._Many as many:
+        errors = many.errors
+        mine = [e for e in errors if field and e.field == field] or errors
+        raise _refusal(mine[0], path, field, old_text) from None
+    except LibraryError as err:
+        raise _refusal(err, path, field, old_text) from None
+    # A part that extends this one and loaded before must still load.
+    for child_id, pf in files.items():
+        if child_id == part_id or child_id not in library.parts:
+            continue
+        if part_id not in _ancestors(child_id, files):
+            continue
+        try:
+            loader._resolve(child_id, files, {})
+        except (loader._Many, LibraryError) as exc:
+            first = exc.errors[0] if isinstance(exc, loader._Many) else exc
+            raise LibraryError(f"the value would break '{child_id}', which extends this part",
+                               file=str(path), field=field, hint=first.message) from None
+    return part
+
+
+def _ancestors(pid: str, files: dict) -> list[str]:
+    out, seen = [], {pid}
+    while True:
+        parent = files[pid].raw.get("extends") if pid in files else None
+        if not isinstance(parent, str) or parent in seen:
+            return out
+        out.append(parent)
+        seen.add(parent)
+        pid = parent
+
+
+def _refusal(err: PinlibError, path: Path, field: str | None, old_text: str | None):
+    """The error for a value that does not validate, located in the file as it stands."""
+    if field is None:
+        return err
+    line = None if old_text is None else line_of(line_index(old_text), tuple(field.split(".")))
+    if err.field == field:
+        return LibraryError(f"the value is refused: {err.problem}", file=str(path), line=line,
+                            field=field, value=err.value, expected=err.expected, hint=err.hint)
+    return LibraryError("the part would not validate with this value", file=str(path),
+                        line=line, field=field, hint=err.message)
+
+
+def _value_item(value_text: str, basis: str, source: str, typ: str | None) -> InlineTable:
+    bits = [f"value = {_toml_string(value_text)}", f"basis = {_toml_string(basis)}",
+            f"source = {_toml_string(source)}"]
+    if typ is not None:
+        bits.append(f"typ = {_toml_string(typ)}")
+    return tomlkit.parse("v = { " + ", ".join(bits) + " }\n")["v"]
+
+
+def _plain(item) -> object:
+    return item.unwrap() if hasattr(item, "unwrap") else item
+
+
+def _rebuilt_inline(table: InlineTable, key: str, item) -> InlineTable:
+    """An inline table with ``key`` set, each other entry written as it was."""
+    bits, done = [], False
+    for k, v in table.value.body:
+        if k is None:
+            continue
+        if k.key == key:
+            bits.append(f"{k.as_string().strip()} = {item.as_string().strip()}")
+            done = True
+        else:
+            bits.append(f"{k.as_string().strip()} = {v.as_string().strip()}")
+    if not done:
+        bits.append(f"{tomlkit.key(key).as_string().strip()} = {item.as_string().strip()}")
+    return tomlkit.parse("v = { " + ", ".join(bits) + " }\n")["v"]
+
+
+def _set_in_table(table: Table, key: str, item) -> None:
+    """Set ``key`` in a [table]: in place when present, else after its last entry."""
+    if key in table:
+        table[key] = item
+        return
+    body = table.value.body
+    trailing = []
+    # Blank lines and comments at the end of a table belong to what follows it: keep them
+    # there, and put the new entry after the table's last key.  Keyless entries at the very
+    # end of the body are not in tomlkit's key map, so moving them keeps it consistent.
+    while body and body[-1][0] is None:
+        trailing.insert(0, body.pop())
+    table.append(key, item)
+    for entry in trailing:
+        body.append(entry)
+
+
+def _new_table(parent, key: str) -> Table:
+    """Add an empty [table] under ``parent`` (the document or a table) and return it."""
+    if isinstance(parent, Table) and parent.is_super_table() and len(parent.value.body):
+        # After the last sibling [parent.x] table, taking over its trailing comments.
+        last = next((v for k, v in reversed(parent.value.body) if k is not None), None)
+        if isinstance(last, Table):
+            body = last.value.body
+            trailing = []
+            while body and body[-1][0] is None:
+                trailing.insert(0, body.pop())
+            parent.append(key, tomlkit.table())
+            new = parent[key]
+            for entry in trailing:
+                new.value.body.append(entry)
+            return new
+    parent.append(key, tomlkit.table(is_super_table=False))
+    return parent[key]
+
+
+def _set_path(doc, path: tuple[str, ...], item) -> None:
+    node = doc
+    for depth, key in enumerate(path[:-1]):
+        if key in node:
+            child = node[key]
+            if isinstance(child, InlineTable):
+                node[key] = _inline_with(child, path[depth + 1:], item)
+                return
+            if not isinstance(child, (Table, dict)):
+                raise LibraryError("the file has a value where a table belongs",
+                                   field=".".join(path[: depth + 1]), value=_plain(child))
+            node = child
+            continue
+        # Missing: a [table] for the last level, a super table above it.
+        if depth == len(path) - 2:
+            node = _new_table(node, key)
+        else:
+            node.append(key, tomlkit.table(is_super_table=True))
+            node = node[key]
+    if isinstance(node, Table):
+        _set_in_table(node, path[-1], item)
+    else:
+        node[path[-1]] = item
+
+
+def _inline_with(table: InlineTable, rest: tuple[str, ...], item) -> InlineTable:
+    """``table`` with ``rest`` (a path inside it) set to ``item``, re-rendered on one line."""
+    if len(rest) == 1:
+        return _rebuilt_inline(table, rest[0], item)
+    key = rest[0]
+    inner = table.get(key)
+    if inner is None:
+        inner = tomlkit.parse("v = {}\n")["v"]
+    elif not isinstance(inner, InlineTable):
+        raise LibraryError("the file has a value where a table belongs", field=key,
+                           value=_plain(inner))
+    return _rebuilt_inline(table, key, _inline_with(inner, rest[1:], item))
+
+
+def _expected_data(data: dict, path: tuple[str, ...], value: dict) -> dict:
+    out = copy.deepcopy(data)
+    node = out
+    for key in path[:-1]:
+        node = node.setdefault(key, {})
+    node[path[-1]] = value
+    return out
+
+
+def record_value(library: loader.Library, part_id: str, field: str, value_text: str,
+                 source: str, basis: str = "datasheet", typ: str | None = None) -> Path:
+    """Write one value with its provenance into a team part file.
+
+    Parameters
+    ----------
+    library : Library
+        The merged library holding the part (and the classes it extends).
+    part_id : str
+        The team part to write into.
+    field : str
+        ``PIN.FIELD`` (``"sda.c_in"``), ``"timing.f_max"``, ``"supply.min"``,
+        ``"sides.a.sda.v_il"``...
+    value_text : str
+        The value as written in a datasheet, with its unit (``"8 pF"``, ``"0.3 VDD"``).
+    source : str
+        Where the value comes from: document, revision, table or page.
+    basis : str
+        ``datasheet``, ``measured`` or ``estimate``.
+    typ : str, optional
+        A typical value to keep beside the limit.
+
+    Returns
+    -------
+    Path
+        The file written.
+
+    Raises
+    ------
+    LibraryError
+        An unknown part or field, a file of the built-in library, or a value with which
+        the part does not validate (the file is then left untouched).
+    WriteError
+        When the file cannot be replaced; the old file stays whole.
+    """
+    if part_id not in library.files:
+        library.get(part_id)  # raises with the closest ids
+    pf = library.files[part_id]
+    path = pf.path
+    if pf.builtin or _inside_builtin(path):
+        raise LibraryError("the built-in library is not written to", file=str(path),
+                           field="id", value=part_id,
+                           hint=f"make a team part first: pinlib parts new {part_id}-v2 "
+                                f"--from {part_id} --into FOLDER")
+    keys, _kind = resolve_path(field)
+    dotted = ".".join(keys)
+    if not isinstance(value_text, str) or not value_text.strip():
+        raise InputError("a value is needed", field=dotted, value=value_text,
+                         expected="a value with its unit, e.g. '8 pF'")
+    if not isinstance(source, str) or not source.strip():
+        raise InputError("every recorded value needs its source", field="source",
+                         expected="the document, revision and table, e.g. 'rev C, table 7.5'")
+    if basis not in RECORD_BASES + ("generic",):
+        raise InputError("unknown basis", field="basis", value=basis,
+                         expected="one of " + ", ".join(RECORD_BASES + ("generic",)))
+    if typ is not None and not (isinstance(typ, str) and typ.strip()):
+        raise InputError("an empty typical value", field=f"{dotted}.typ", value=typ)
+    item = _value_item(value_text.strip(), basis, source.strip(),
+                       None if typ is None else typ.strip())
+
+    with file_lock(path):
+        try:
+            old_text = path.read_text(encoding="utf-8")
+        except OSError as exc:
+            raise LibraryError(f"cannot read the file: {exc.strerror}", file=str(path)) from None
+        try:
+            doc = tomlkit.parse(old_text)
+            old_data = tomllib.loads(old_text)
+        except (tomlkit.exceptions.TOMLKitError, tomllib.TOMLDecodeError) as exc:
+            raise LibraryError(f"not valid TOML: {exc}", file=str(path)) from None
+        if old_data.get("id") != part_id or old_data.get("format") != FORMAT:
+            raise LibraryError("the file no longer holds this part", file=str(path),
+                               field="id", value=old_data.get("id"), expected=part_id)
+        _check_pin_exists(library, part_id, pf, old_data, keys)
+        before = doc.as_string()
+        _set_path(doc, keys, item)
+        expected = _expected_data(old_data, keys, _plain(item))
+        new_text = _keep_untouched_lines(old_text, before, doc.as_string())
+        new_text, stamp = _stamp_recorded(new_text, old_data)
+        if stamp is not None:
+            expected["provenance"]["recorded"] = stamp
+        try:
+            new_data = tomllib.loads(new_text)
+        except tomllib.TOMLDecodeError:
+            new_data = None
+        if new_data != expected:
+            raise LibraryError("cannot set this value while keeping the file's layout",
+                               file=str(path), field=dotted,
+                               hint=f"write it by hand: {dotted.split('.')[-1]} = "
+                                    f"{item.as_string()}")
+        _validate(library, part_id, path, new_text, field=dotted, old_text=old_text)
+        atomic_write(path, new_text)
+    return path
+
+
+def _check_pin_exists(library, part_id, pf, data, keys) -> None:
+    """A pin must exist (here or in a parent) before a value is recorded on it."""
+    if "pins" not in keys:
+        return
+    at = keys.index("pins")
+    pin = keys[at + 1]
+    files = dict(library.files)
+    files[part_id] = loader.PartFile(pf.path, data, "", False)
+    try:
+        merged, _, _ = loader._merged_raw(part_id, files, [])
+    except LibraryError:
+        return  # the full validation reports it
+    node = merged
+    for key in keys[: at + 1]:
+        node = node.get(key, {}) if isinstance(node, dict) else {}
+    if not isinstance(node, dict) or pin not in node:
+        names = ", ".join(sorted(node)) if isinstance(node, dict) and node else "none"
+        raise LibraryError("the part has no such pin", field=".".join(keys[: at + 2]),
+                           value=pin, expected=f"one of its pins ({names})",
+                           hint="a new pin needs its function: add its table to the file by hand")
+
+
+def _keep_untouched_lines(old_text: str, before: str, after: str) -> str:
+    """The edited text with every line the edit did not touch exactly as it was.
+
+    tomlkit round-trips nearly every file byte for byte, but not all (it drops the
+    space in ``{ recorded = 2026-12-01 }``).  ``before`` is its rendering of the file
+    unedited, ``after`` of the edited file: lines that match between the two are taken
+    from the original text.
+    """
+    if before == old_text:
+        return after
+    old_lines = old_text.splitlines(keepends=True)
+    b, a = before.splitlines(keepends=True), after.splitlines(keepends=True)
+    if len(old_lines) != len(b):
+        return after
+    out: list[str] = []
+    matcher = difflib.SequenceMatcher(a=b, b=a, autojunk=False)
+    for tag, i1, i2, j1, j2 in matcher.get_opcodes():
+        out += old_lines[i1:i2] if tag == "equal" else a[j1:j2]
+    return "".join(out)
+
+
+_RECORDED = re.compile(r"(\brecorded\s*=\s*)\d{4}-\d{2}-\d{2}(?![\dT:])")
+
+
+def _stamp_recorded(text: str, data: dict) -> tuple[str, _dt.date | None]:
+    """Set ``provenance.recorded`` to today when the file already carries that key.
+
+    The date is replaced in the text of its line (tomlkit would re-render the line).
+    """
+    prov = data.get("provenance")
+    if not isinstance(prov, dict) or type(prov.get("recorded")) is not _dt.date:
+        return text, None
+    line = line_of(line_index(text), ("provenance", "recorded"))
+    lines = text.splitlines(keepends=True)
+    if line is None or not _RECORDED.search(lines[line - 1]):
+        return text, None
+    today = _dt.date.today()
+    lines[line - 1] = _RECORDED.sub(lambda m: m.group(1) + today.isoformat(), lines[line - 1],
+                                    count=1)
+    return "".join(lines), today

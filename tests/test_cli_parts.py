@@ -1,0 +1,344 @@
+"""``pinlib parts``: every action run in-process, its output and exit code."""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from pinlib.cli import main
+from pinlib.library import loader
+from pinlib.tomlfile import tomllib
+
+BASE = """\
+format = "pinlib.part/1"
+id = "base"
+title = "Generic I2C target"
+category = "sensor"
+abstract = true
+supply = { min = "1.7 V", max = "5.5 V" }
+provenance = { basis = "generic", source = "common practice" }
+
+[pins.sda]
+function = "i2c-sda"
+drive = "open-drain"
+c_in = { value = "10 pF", source = "spec, Ci max" }
+v_il = "0.3 VDD"
+
+[pins.scl]
+function = "i2c-scl"
+c_in = "10 pF"
+"""
+
+FLASH = """\
+format = "pinlib.part/1"
+id = "flash"
+title = "Serial flash, SPI"
+category = "memory"
+supply = { min = "2.7 V", max = "3.6 V" }
+
+[pins.sclk]
+function = "spi-sclk"
+c_in = "6 pF"
+
+[timing]
+f_max = "50 MHz"
+t_valid = "7 ns"
+"""
+
+EEPROM = """\
+# our EEPROM
+format = "pinlib.part/1"
+id = "eeprom"
+title = "Serial EEPROM, team"
+category = "memory"
+extends = "base"
+supply = { max = "3.6 V" }
+
+[pins.sda]
+c_in = "8 pF"   # rev A, table 3
+"""
+
+
+@pytest.fixture
+def lib(tmp_path, monkeypatch):
+    builtin = tmp_path / "builtin"
+    builtin.mkdir()
+    (builtin / "base.toml").write_text(BASE, encoding="utf-8")
+    (builtin / "flash.toml").write_text(FLASH, encoding="utf-8")
+    team = tmp_path / "team"
+    team.mkdir()
+    (team / "eeprom.toml").write_text(EEPROM, encoding="utf-8")
+    monkeypatch.setattr(loader, "BUILTIN_DIR", builtin)
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    monkeypatch.chdir(tmp_path)
+    return builtin, team
+
+
+def run(capsys, *argv):
+    code = main(list(argv))
+    out, err = capsys.readouterr()
+    return code, out, err
+
+
+# --- list --------------------------------------------------------------------------------
+
+def test_list_table(lib, capsys):
+    code, out, err = run(capsys, "parts", "list", "--library", "team")
+    assert code == 0 and not err
+    lines = {line.split()[0]: line for line in out.splitlines()[2:]}
+    assert set(lines) == {"base", "eeprom", "flash"}
+    assert "abstract" in lines["base"] and "built-in" in lines["base"]
+    assert "1.7-3.6 V" in lines["eeprom"] and "i2c-scl, i2c-sda" in lines["eeprom"]
+    assert "team" in lines["eeprom"]
+
+
+def test_list_marks_a_team_override(lib, capsys):
+    _, team = lib
+    (team / "flash.toml").write_text(FLASH.replace("50 MHz", "80 MHz"), encoding="utf-8")
+    code, out, _ = run(capsys, "parts", "list", "--library", "team")
+    line = next(x for x in out.splitlines() if x.startswith("flash"))
+    assert code == 0 and "team, overrides built-in" in line
+    code, out, _ = run(capsys, "parts", "list", "--library", "team", "--json")
+    entry = next(p for p in json.loads(out) if p["id"] == "flash")
+    assert entry["overrides"].endswith("flash.toml") and not entry["builtin"]
+
+
+@pytest.mark.parametrize(("args", "ids"), [
+    (["--category", "memory"], ["eeprom", "flash"]),
+    (["--function", "spi-sclk"], ["flash"]),
+    (["--supply", "3.3V"], ["base", "eeprom", "flash"]),
+    (["--supply", "5 V"], ["base"]),
+    (["--supply", "1.8 V", "--category", "memory"], ["eeprom"]),
+    (["--supply", "12 V"], []),
+])
+def test_list_filters(lib, capsys, args, ids):
+    code, out, _ = run(capsys, "parts", "list", "--library", "team", "--json", *args)
+    assert code == 0
+    assert [p["id"] for p in json.loads(out)] == ids
+
+
+def test_list_json_fields(lib, capsys):
+    code, out, _ = run(capsys, "parts", "list", "--library", "team", "--json")
+    eeprom = next(p for p in json.loads(out) if p["id"] == "eeprom")
+    assert eeprom["supply"] == [{"side": None, "min": 1.7, "max": 3.6, "unit": "V"}]
+    assert eeprom["functions"] == ["i2c-scl", "i2c-sda"]
+    assert eeprom["abstract"] is False and eeprom["category"] == "memory"
+
+
+@pytest.mark.parametrize(("args", "match"), [
+    (["--category", "memroy"], "closest: memory"),
+    (["--function", "i2c_sda"], "i2c-sda"),
+    (["--supply", "3.3"], "bare number"),
+])
+def test_list_bad_filters(lib, capsys, args, match):
+    code, out, err = run(capsys, "parts", "list", *args)
+    assert code == 2 and not out and match in err and err.startswith("pinlib: error:")
+
+
+def test_list_warns_about_problems(lib, capsys):
+    _, team = lib
+    (team / "broken.toml").write_text('format = "pinlib.part/1"\nid = "broken"\n',
+                                      encoding="utf-8")
+    code, out, err = run(capsys, "parts", "list", "--library", "team")
+    assert code == 0 and "2 problems" in err and "pinlib parts check" in err  # title, category
+
+
+# --- show --------------------------------------------------------------------------------
+
+def test_show_values_with_provenance_and_origin(lib, capsys):
+    code, out, _ = run(capsys, "parts", "show", "eeprom", "--library", "team")
+    assert code == 0
+    assert "eeprom: Serial EEPROM, team" in out and "extends: eeprom <- base" in out
+    rows = {line.split()[0]: line for line in out.splitlines()
+            if line.startswith(("pins.", "supply."))}
+    assert "8 pF" in rows["pins.sda.c_in"] and "base" not in rows["pins.sda.c_in"]
+    assert "10 pF" in rows["pins.scl.c_in"] and "base (" in rows["pins.scl.c_in"]
+    assert "builtin" in rows["pins.scl.c_in"]  # the file it came from
+    assert "3.6 V" in rows["supply.max"] and "1.7 V" in rows["supply.min"]
+
+
+def test_show_json(lib, capsys):
+    code, out, _ = run(capsys, "parts", "show", "eeprom", "--library", "team", "--json")
+    data = json.loads(out)
+    assert code == 0 and data["id"] == "eeprom"
+    assert [c["id"] for c in data["chain"]] == ["eeprom", "base"]
+    values = {v["field"]: v for v in data["values"]}
+    sda = values["pins.sda.c_in"]
+    assert (sda["value"], sda["unit"], sda["origin"], sda["inherited"]) == (8e-12, "F", "eeprom",
+                                                                            False)
+    scl = values["pins.scl.c_in"]
+    assert scl["origin"] == "base" and scl["inherited"] and scl["origin_file"].endswith("base.toml")
+    assert scl["basis"] == "generic" and scl["basis_from_part"]
+    v_il = values["pins.sda.v_il"]
+    assert (v_il["scale"], v_il["offset"], v_il["derived"]) == (0.3, 0.0, False)
+    attributes = {a["field"]: a["value"] for a in data["attributes"]}
+    assert attributes["pins.sda.drive"] == "open-drain"
+
+
+def test_show_inherited_value_table_keeps_its_source(lib, capsys):
+    code, out, _ = run(capsys, "parts", "show", "base", "--json")
+    values = {v["field"]: v for v in json.loads(out)["values"]}
+    assert values["pins.sda.c_in"]["source"] == "spec, Ci max"
+
+
+def test_show_unknown_part(lib, capsys):
+    code, out, err = run(capsys, "parts", "show", "eeprm", "--library", "team")
+    assert code == 2 and "unknown part" in err and "eeprom" in err
+
+
+# --- new and record ----------------------------------------------------------------------
+
+def test_new_then_record(lib, capsys):
+    _, team = lib
+    code, out, _ = run(capsys, "parts", "new", "flash-b", "--from", "flash", "--into", "team",
+                       "--title", "Second-source flash")
+    assert code == 0 and "created team/flash-b.toml" in out
+    code, out, _ = run(capsys, "parts", "record", "flash-b", "sclk.c_in", "5 pF",
+                       "--source", "rev B, table 6", "--typ", "3 pF", "--library", "team")
+    assert code == 0 and "recorded pins.sclk.c_in = 5 pF" in out
+    code, out, _ = run(capsys, "parts", "record", "flash-b", "timing.t_valid", "6 ns",
+                       "--source", "rev B, table 9", "--basis", "measured", "--library", "team")
+    assert code == 0
+    data = tomllib.loads((team / "flash-b.toml").read_text(encoding="utf-8"))
+    assert data["extends"] == "flash" and data["title"] == "Second-source flash"
+    assert data["pins"]["sclk"]["c_in"] == {"value": "5 pF", "basis": "datasheet",
+                                            "source": "rev B, table 6", "typ": "3 pF"}
+    assert data["timing"]["t_valid"]["basis"] == "measured"
+    code, out, _ = run(capsys, "parts", "show", "flash-b", "--library", "team", "--json")
+    values = {v["field"]: v for v in json.loads(out)["values"]}
+    assert values["timing.t_valid"]["value"] == 6e-9
+    assert values["timing.f_max"]["origin"] == "flash"
+
+
+def test_new_defaults_to_the_first_library_folder(lib, capsys, monkeypatch, tmp_path):
+    code, out, err = run(capsys, "parts", "new", "x1", "--from", "base")
+    assert code == 2 and "--into" in err
+    code, out, _ = run(capsys, "parts", "new", "x1", "--from", "base", "--library", "team")
+    assert code == 0 and (tmp_path / "team" / "x1.toml").exists()
+    other = tmp_path / "other"
+    other.mkdir()
+    monkeypatch.setenv("PINLIB_LIBRARY", str(other))
+    code, out, _ = run(capsys, "parts", "new", "x2", "--from", "base")
+    assert code == 0 and (other / "x2.toml").exists()
+
+
+def test_new_refusals(lib, capsys):
+    code, _, err = run(capsys, "parts", "new", "eeprom", "--from", "base", "--into", "team",
+                       "--library", "team")
+    assert code == 2 and "exists" in err
+    code, _, err = run(capsys, "parts", "new", "x", "--from", "bse", "--into", "team")
+    assert code == 2 and "closest in the library: base" in err
+    code, _, err = run(capsys, "parts", "new", "x", "--from", "base", "--into", "builtin")
+    assert code == 2 and "built-in" in err
+
+
+def test_record_refusals_leave_files_alone(lib, capsys):
+    builtin, team = lib
+    before = (team / "eeprom.toml").read_bytes()
+    code, _, err = run(capsys, "parts", "record", "eeprom", "sda.c_in", "10 pH",
+                       "--source", "rev B", "--library", "team")
+    assert code == 2 and "pins.sda.c_in" in err and "capacitance" in err
+    assert "team/eeprom.toml:10" in err
+    code, _, err = run(capsys, "parts", "record", "flash", "sclk.c_in", "5 pF",
+                       "--source", "rev B", "--library", "team")
+    assert code == 2 and "built-in" in err and "pinlib parts new" in err
+    assert (team / "eeprom.toml").read_bytes() == before
+    assert (builtin / "flash.toml").read_text(encoding="utf-8") == FLASH
+
+
+def test_record_needs_a_source(lib, capsys):
+    with pytest.raises(SystemExit) as info:
+        main(["parts", "record", "eeprom", "sda.c_in", "5 pF", "--library", "team"])
+    assert info.value.code == 2
+    assert "--source" in capsys.readouterr().err
+
+
+def test_record_negative_value_after_double_dash(lib, capsys):
+    code, out, err = run(capsys, "parts", "record", "eeprom", "--source", "rev B",
+                         "--library", "team", "--", "sda.v_il", "-0.3 V")
+    assert code == 0, err
+    data = tomllib.loads((lib[1] / "eeprom.toml").read_text(encoding="utf-8"))
+    assert data["pins"]["sda"]["v_il"]["value"] == "-0.3 V"
+
+
+# --- check -------------------------------------------------------------------------------
+
+def test_check_clean(lib, capsys):
+    code, out, _ = run(capsys, "parts", "check", "--library", "team")
+    assert code == 0 and "checked 3 files in the library: no problems" in out
+    code, out, _ = run(capsys, "parts", "check", "team")
+    assert code == 0 and "checked 1 file in team: no problems" in out
+
+
+def test_check_reports_every_problem(lib, capsys, tmp_path):
+    bad = tmp_path / "bad"
+    bad.mkdir()
+    (bad / "a.toml").write_text(EEPROM.replace('id = "eeprom"', 'id = "a"').replace(
+        '"8 pF"', '"8 pH"'), encoding="utf-8")
+    (bad / "b.toml").write_text('format = "pinlib.part/1"\nid = "b"\nextends = "nobody"\n',
+                                encoding="utf-8")
+    (bad / "c.toml").write_text("format = [\n", encoding="utf-8")
+    code, out, _ = run(capsys, "parts", "check", "bad", "--library", "team")
+    assert code == 1
+    lines = out.splitlines()
+    assert any(x.startswith("bad/a.toml:10, field 'pins.sda.c_in'") for x in lines)
+    assert any(x.startswith("bad/b.toml:3, field 'extends'") for x in lines)
+    assert any(x.startswith("bad/c.toml") and "TOML" in x for x in lines)
+    assert lines[-1] == "checked 3 files in bad: 3 problems"
+    code, out, _ = run(capsys, "parts", "check", "bad", "--json")
+    data = json.loads(out)
+    assert code == 1 and len(data["problems"]) == 3
+    assert {p["field"] for p in data["problems"]} == {"pins.sda.c_in", "extends", None}
+
+
+def test_check_folder_reports_a_broken_parent(lib, capsys, tmp_path):
+    builtin, _ = lib
+    (builtin / "base.toml").write_text(BASE.replace('c_in = "10 pF"', 'c_in = "10 pH"'),
+                                       encoding="utf-8")
+    code, out, _ = run(capsys, "parts", "check", "team")
+    assert code == 1 and "team/eeprom.toml" in out and "base.toml" in out
+
+
+def test_check_missing_folder(lib, capsys):
+    code, _, err = run(capsys, "parts", "check", "nowhere")
+    assert code == 2 and "not a folder" in err
+
+
+# --- schema ------------------------------------------------------------------------------
+
+def test_schema_stdout_and_file(lib, capsys, tmp_path):
+    code, out, _ = run(capsys, "parts", "schema")
+    schema = json.loads(out)
+    assert code == 0 and schema["$schema"].startswith("https://json-schema.org/")
+    code, out, _ = run(capsys, "parts", "schema", "--output", "part.schema.json")
+    assert code == 0 and json.loads((tmp_path / "part.schema.json").read_text(
+        encoding="utf-8")) == schema
+
+
+# --- help and start-up -------------------------------------------------------------------
+
+@pytest.mark.parametrize("action", ["list", "show", "new", "record", "check", "schema"])
+def test_every_action_has_help_with_an_example(capsys, action):
+    with pytest.raises(SystemExit) as info:
+        main(["parts", action, "--help"])
+    out = capsys.readouterr().out
+    assert info.value.code == 0
+    assert "examples:" in out and f"pinlib parts {action}" in out
+
+
+def test_parts_without_action_prints_help(capsys):
+    assert main(["parts"]) == 2
+    assert "examples:" in capsys.readouterr().out
+
+
+def test_cli_stays_free_of_pandas_and_altair(lib):
+    code = ("import sys; from pinlib.cli import main; main(['parts', 'list', '--json']); "
+            "assert 'pandas' not in sys.modules and 'altair' not in sys.modules, "
+            "sorted(m for m in ('pandas', 'altair') if m in sys.modules)")
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                          cwd=Path(__file__).resolve().parents[1], timeout=120)
+    assert done.returncode == 0, done.stderr

@@ -1,0 +1,505 @@
+"""The parts library: schema errors with their place, extends, overlays, checks, fuzz."""
+
+from __future__ import annotations
+
+import json
+import re
+import tempfile
+import textwrap
+from pathlib import Path
+
+import pytest
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+
+from pinlib.errors import LibraryError, PinlibError
+from pinlib.library import loader
+from pinlib.library.jsonschema import level_pattern, part_json_schema, quantity_pattern
+from pinlib.library.loader import library_folders, load_library
+from pinlib.quantity import UNITS, parse, parse_threshold
+
+BASE = """\
+format = "pinlib.part/1"
+id = "base"
+title = "Generic target"
+category = "sensor"
+abstract = true
+supply = { min = "1.7 V", max = "5.5 V" }
+provenance = { basis = "generic", source = "common practice" }
+
+[pins.sda]
+function = "i2c-sda"
+drive = "open-drain"
+c_in = { value = "10 pF", source = "spec, Ci max" }
+leakage = "10 µA"
+v_il = "0.3 VDD"
+v_ih = "0.7 VDD"
+v_ol = "0.4 V"
+i_ol = "3 mA"
+
+[pins.scl]
+function = "i2c-scl"
+c_in = "10 pF"
+
+[timing]
+f_max = "400 kHz"
+"""
+
+
+def write(folder: Path, name: str, text: str) -> Path:
+    folder.mkdir(parents=True, exist_ok=True)
+    path = folder / name
+    path.write_text(textwrap.dedent(text), encoding="utf-8")
+    return path
+
+
+def part(pid: str, extends: str | None = None, body: str = "", title: str = "A part") -> str:
+    head = f'format = "pinlib.part/1"\nid = "{pid}"\ntitle = "{title}"\ncategory = "sensor"\n'
+    if extends:
+        head += f'extends = "{extends}"\n'
+    return head + textwrap.dedent(body)
+
+
+@pytest.fixture
+def builtin(tmp_path, monkeypatch):
+    """A built-in library of our own, and no PINLIB_LIBRARY from the environment."""
+    folder = tmp_path / "builtin"
+    write(folder / "generic", "base.toml", BASE)
+    monkeypatch.setattr(loader, "BUILTIN_DIR", folder)
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    return folder
+
+
+def line_of_text(path: Path, needle: str) -> int:
+    for number, line in enumerate(path.read_text(encoding="utf-8").splitlines(), start=1):
+        if needle in line:
+            return number
+    raise AssertionError(needle)
+
+
+# --- schema errors name file, line and field --------------------------------------------
+
+def test_wrong_unit_names_file_line_field_and_expected(builtin, tmp_path):
+    team = tmp_path / "team"
+    path = write(team, "x.toml", part("x", "base", """
+        [pins.sda]
+        # a comment line before the value
+        c_in = "10 pH"
+        """))
+    lib = load_library([team])
+    assert "x" not in lib.parts
+    (err,) = lib.problems
+    assert isinstance(err, LibraryError)
+    assert err.file == str(path)
+    assert err.line == line_of_text(path, "10 pH")
+    assert err.field == "pins.sda.c_in"
+    assert "capacitance" in err.expected
+    assert f"{path}:{err.line}" in err.message
+
+
+def test_value_table_and_inline_table_lines(builtin, tmp_path):
+    team = tmp_path / "team"
+    path = write(team, "x.toml", part("x", "base", """
+        supply = { min = "1.7 V", max = "5.5 A" }
+
+        [pins.sda]
+        c_in = { value = "8 pF", basis = "hearsay" }
+        """))
+    lib = load_library([team])
+    by_field = {e.field: e for e in lib.problems}
+    assert by_field["supply.max"].line == line_of_text(path, "supply =")
+    assert by_field["supply.max"].file == str(path)
+    assert by_field["pins.sda.c_in"].line == line_of_text(path, "hearsay")
+    assert "basis" in by_field["pins.sda.c_in"].message
+
+
+def test_unknown_field_and_bare_number(builtin, tmp_path):
+    team = tmp_path / "team"
+    path = write(team, "x.toml", part("x", "base", """
+        [pins.sda]
+        c_inn = "8 pF"
+        leakage = 1
+        """))
+    lib = load_library([team])
+    by_field = {e.field: e for e in lib.problems}
+    assert by_field["pins.sda.c_inn"].problem == "unknown field"
+    assert by_field["pins.sda.c_inn"].line == line_of_text(path, "c_inn")
+    assert "bare number" in by_field["pins.sda.leakage"].problem
+    assert '"1 mA"' in by_field["pins.sda.leakage"].hint
+
+
+def test_not_toml_names_the_line(builtin, tmp_path):
+    team = tmp_path / "team"
+    path = write(team, "x.toml", 'format = "pinlib.part/1"\nid = "x"\ntitle = \n')
+    (err,) = load_library([team]).problems
+    assert err.file == str(path) and err.line == 3 and "TOML" in err.problem
+
+
+def test_not_a_part_file(builtin, tmp_path):
+    team = tmp_path / "team"
+    write(team, "x.toml", 'format = "pinlib.design/1"\nid = "x"\n')
+    (err,) = load_library([team]).problems
+    assert err.field == "format" and err.line == 1
+
+
+def test_inherited_bad_value_points_at_the_parent_file(builtin, tmp_path):
+    team = tmp_path / "team"
+    parent = write(team, "p.toml", part("p", "base", '[pins.scl]\nleakage = "3 V"\n'))
+    write(team, "c.toml", part("c", "p", '[pins.sda]\nc_in = "8 pF"\n'))
+    lib = load_library([team])
+    files = {e.file for e in lib.problems}
+    assert files == {str(parent)}  # both p and c fail at the line in p
+    assert all(e.field == "pins.scl.leakage" for e in lib.problems)
+
+
+def test_strict_raises_the_first_problem(builtin, tmp_path):
+    team = tmp_path / "team"
+    write(team, "x.toml", part("x", "base", '[pins.sda]\nc_in = "10 pH"\n'))
+    with pytest.raises(LibraryError, match="pins.sda.c_in"):
+        load_library([team], strict=True)
+
+
+def test_unknown_part_names_the_closest(builtin):
+    lib = load_library()
+    with pytest.raises(LibraryError, match="closest in the library: base"):
+        lib.get("bsae")
+
+
+# --- extends ----------------------------------------------------------------------------
+
+def test_three_level_chain_and_origins(builtin, tmp_path):
+    team = tmp_path / "team"
+    mid = write(team, "mid.toml", part("mid", "base", """
+        supply = { max = "3.6 V" }
+
+        [pins.sda]
+        c_in = "8 pF"
+        """))
+    leaf = write(team, "leaf.toml", part("leaf", "mid", """
+        [pins.sda]
+        leakage = { value = "1 µA", basis = "datasheet", source = "rev B, table 4" }
+
+        [timing]
+        f_max = "1 MHz"
+        """))
+    lib = load_library([team])
+    assert not lib.problems
+    p = lib.parts["leaf"]
+    assert lib.chain("leaf") == ["leaf", "mid", "base"]
+    sda = p.pins["sda"]
+    assert (sda.c_in.value, sda.c_in.origin) == (8e-12, "mid")
+    assert (sda.leakage.value, sda.leakage.origin) == (1e-6, "leaf")
+    assert (sda.leakage.basis, sda.leakage.source) == ("datasheet", "rev B, table 4")
+    assert sda.v_il.origin == "base" and sda.v_il.value.scale == 0.3
+    assert (p.supply.min.value, p.supply.min.origin) == (1.7, "base")
+    assert (p.supply.max.value, p.supply.max.origin) == (3.6, "mid")
+    assert (p.timing.f_max.value, p.timing.f_max.origin) == (1e6, "leaf")
+    assert p.pins["scl"].c_in.origin == "base"
+    # id, extends and abstract are not inherited
+    assert not p.abstract and lib.parts["base"].abstract
+    assert lib.path_of("mid") == mid and lib.path_of("leaf") == leaf
+
+
+def test_a_value_table_replaces_the_parents_whole(builtin, tmp_path):
+    team = tmp_path / "team"
+    write(team, "x.toml", part("x", "base", '[pins.sda]\nc_in = { value = "6 pF" }\n'))
+    c_in = load_library([team]).parts["x"].pins["sda"].c_in
+    # The parent's source ("spec, Ci max") belongs to its 10 pF, not to the new value.
+    assert (c_in.value, c_in.source, c_in.origin) == (6e-12, None, "x")
+
+
+def test_cycle_names_both_files(builtin, tmp_path):
+    team = tmp_path / "team"
+    a = write(team, "a.toml", part("a", "b"))
+    b = write(team, "b.toml", part("b", "a"))
+    lib = load_library([team])
+    assert "a" not in lib.parts and "b" not in lib.parts
+    cycles = [e for e in lib.problems if e.problem == "an extends cycle"]
+    assert cycles
+    for err in cycles:
+        assert str(a) in err.message and str(b) in err.message
+
+
+def test_self_extension_is_a_cycle(builtin, tmp_path):
+    team = tmp_path / "team"
+    write(team, "a.toml", part("a", "a"))
+    (err,) = load_library([team]).problems
+    assert err.problem == "an extends cycle"
+
+
+def test_missing_parent(builtin, tmp_path):
+    team = tmp_path / "team"
+    child = write(team, "c.toml", part("c", "bas"))
+    (err,) = load_library([team]).problems
+    assert err.file == str(child) and err.field == "extends" and err.value == "bas"
+    assert err.line == line_of_text(child, "extends")
+    assert "base" in err.hint
+
+
+# --- overlays ---------------------------------------------------------------------------
+
+def test_overlay_order_and_override(builtin, tmp_path, monkeypatch):
+    env_dir, design_dir, cli_dir = tmp_path / "env", tmp_path / "design", tmp_path / "cli"
+    over = write(env_dir, "base.toml", BASE.replace('c_in = "10 pF"', 'c_in = "7 pF"'))
+    write(design_dir, "d.toml", part("d", "base"))
+    write(cli_dir, "c.toml", part("c", "d", '[pins.scl]\nc_in = "5 pF"\n'))
+    monkeypatch.setenv("PINLIB_LIBRARY", str(env_dir))
+    assert library_folders([design_dir, cli_dir]) == [env_dir, design_dir, cli_dir]
+    lib = load_library([design_dir, cli_dir])
+    assert not lib.problems
+    assert lib.folders == [builtin, env_dir, design_dir, cli_dir]
+    # The team part overrides the built-in one of the same id, and the library says so.
+    assert lib.overrides == {"base": builtin / "generic" / "base.toml"}
+    assert lib.path_of("base") == over
+    assert lib.parts["base"].pins["scl"].c_in.value == 7e-12
+    # A --library part can extend a design-folder part that extends the team override.
+    c = lib.parts["c"]
+    assert lib.chain("c") == ["c", "d", "base"]
+    assert c.pins["scl"].c_in.value == 5e-12 and c.pins["sda"].c_in.value == 10e-12
+
+
+def test_two_team_parts_with_one_id_is_an_error_naming_both(builtin, tmp_path):
+    one, two = tmp_path / "one", tmp_path / "two"
+    first = write(one, "x.toml", part("x", "base"))
+    second = write(two, "x2.toml", part("x", "base"))
+    lib = load_library([one, two])
+    (err,) = lib.problems
+    assert err.file == str(second) and str(first) in err.hint and err.field == "id"
+
+
+def test_the_same_folder_twice_is_not_a_duplicate(builtin, tmp_path, monkeypatch):
+    team = tmp_path / "team"
+    write(team, "x.toml", part("x", "base"))
+    monkeypatch.chdir(tmp_path)
+    monkeypatch.setenv("PINLIB_LIBRARY", "team")
+    lib = load_library([team.resolve()])
+    assert not lib.problems and "x" in lib.parts
+
+
+def test_missing_folder_is_a_problem(builtin, tmp_path):
+    lib = load_library([tmp_path / "nowhere"])
+    (err,) = lib.problems
+    assert err.problem == "library folder not found"
+
+
+# --- a check reports every problem ------------------------------------------------------
+
+def test_every_problem_is_reported(builtin, tmp_path):
+    team = tmp_path / "team"
+    write(team, "bad-toml.toml", "format = \n")
+    write(team, "two-errors.toml", part("two-errors", "base", """
+        [pins.sda]
+        c_in = "8 pH"
+        v_il = "0.3 VCC"
+        """))
+    write(team, "unknown.toml", part("unknown", "base", "colour = 'red'\n"))
+    write(team, "orphan.toml", part("orphan", "nobody"))
+    write(team, "good.toml", part("good", "base"))
+    lib = load_library([team])
+    assert set(lib.parts) == {"base", "good"}
+    found = {(Path(e.file).name, e.field) for e in lib.problems}
+    assert found == {("bad-toml.toml", None), ("two-errors.toml", "pins.sda.c_in"),
+                     ("two-errors.toml", "pins.sda.v_il"), ("unknown.toml", "colour"),
+                     ("orphan.toml", "extends")}
+    assert all(e.line for e in lib.problems)
+
+
+# --- JSON Schema ------------------------------------------------------------------------
+
+def test_json_schema_shape():
+    schema = part_json_schema()
+    assert schema["$schema"] == "https://json-schema.org/draft/2020-12/schema"
+    assert "pinlib.part/1" in schema["title"]
+    assert schema["properties"]["id"]["pattern"] == "^[a-z0-9][a-z0-9-]*$"
+    assert "memory" in schema["properties"]["category"]["enum"]
+    pin = schema["$defs"]["Pin"]["properties"]
+    assert "i2c-sda" in pin["function"]["enum"]
+    assert pin["drive"]["enum"] == ["open-drain", "push-pull", "input"]
+    c_in = schema["$defs"][pin["c_in"]["$ref"].split("/")[-1]]
+    string, table = c_in["anyOf"]
+    assert string["type"] == "string" and "capacitance" in string["description"]
+    assert "'8 pF'" in string["description"]
+    assert set(table["properties"]) == {"value", "basis", "source", "typ"}
+    assert "capacitance" in pin["c_in"]["description"]
+    json.dumps(schema)  # serialisable
+    assert "Sourced" not in json.dumps(schema)
+
+
+QUANTITY_GOOD = {
+    "F": ["8 pF", "10pF", "1e-12 F", "4n7", "0.1 µF", "100 nF"],
+    "Ω": ["4.7 kΩ", "4.7k ohm", "4k7", "2R2", "47R", "10 kΩ", "33 Ohm"],
+    "s": ["2.2 ns", "0.9 µs", "5 ms"],
+    "Hz": ["400 kHz", "1 MHz", "25MHz"],
+    "A": ["3 mA", "0.5 mA", "10 µA"],
+    "V": ["3.3 V", "-0.3 V", "400 mV"],
+    "F/m": ["0.8 pF/cm", "3.5 pF/in", "1 pF / mm"],
+    "s/m": ["58 ps/cm", "170 ps/in"],
+    "m": ["35 µm", "1.6 mm", "6 mil", "14 cm", "1 in"],
+}
+QUANTITY_BAD = {
+    "F": ["10 pH", "8", "8 pF x", "pF", "4k7 Ω"],
+    "Ω": ["4.7 kF", "10 K", "1 kR"],
+    "Hz": ["400 khz x", "1 M"],
+    "V": ["3.3", "0.7 VDD"],
+    "F/m": ["0.8 pF", "1 pF/s"],
+}
+
+
+@pytest.mark.parametrize("unit", sorted(QUANTITY_GOOD))
+def test_schema_patterns_follow_the_parser(unit):
+    pattern = re.compile(quantity_pattern(unit))
+    for text in QUANTITY_GOOD[unit]:
+        parse(text, unit)
+        assert pattern.match(text), text
+    for text in QUANTITY_BAD.get(unit, []):
+        assert not pattern.match(text), text
+
+
+def test_level_pattern_follows_the_parser():
+    pattern = re.compile(level_pattern())
+    for text in ["0.7 VDD", "VDD - 0.4 V", "2.0 V", "VDD + 0.5 V", "70 % VDD", "-0.3 V",
+                 "0.5 VDD - 100 mV"]:
+        parse_threshold(text)
+        assert pattern.match(text), text
+    for text in ["0.7 VCC", "0.7", "VDD -", "2 A", "VDD - -0.3 V"]:
+        assert not pattern.match(text), text
+
+
+_PATTERN_TEXT = st.lists(st.sampled_from(
+    list("0123456789.eE+- kKmunpµfMGRΩ%/·*") + ["ohm", "VDD", "V", "F", "Hz", "s", "A", "cm",
+                                               "in", "mil", "m"]), max_size=8).map("".join)
+
+
+@settings(max_examples=300, deadline=None)
+@given(text=_PATTERN_TEXT, unit=st.sampled_from(["F", "Ω", "s", "Hz", "V", "A", "F/m", "m"]))
+def test_fuzz_schema_pattern_implies_parse(text, unit):
+    """What the editor's pattern accepts, the parser accepts (finite values aside)."""
+    if re.match(quantity_pattern(unit), text):
+        try:
+            parse(text, unit)
+        except PinlibError as err:
+            assert "finite" in err.problem, (text, err)
+    if re.match(level_pattern(), text):
+        try:
+            parse_threshold(text)
+        except PinlibError as err:
+            assert "finite" in err.problem, (text, err)
+
+
+def test_schema_validates_part_files(builtin):
+    jsonschema = pytest.importorskip("jsonschema")
+    from pinlib.tomlfile import tomllib
+
+    schema = part_json_schema()
+    jsonschema.Draft202012Validator.check_schema(schema)
+    validator = jsonschema.Draft202012Validator(schema)
+    base = tomllib.loads(BASE)
+    assert not list(validator.iter_errors(base))
+    child = tomllib.loads(part("x", "base",
+                               '[pins.sda]\nc_in = { value = "8 pF", typ = "5 pF" }\n'))
+    assert not list(validator.iter_errors(child))
+    # a child need not repeat the pin function; a root class must give it
+    orphan = tomllib.loads(part("x", None, '[pins.sda]\nc_in = "8 pF"\n'))
+    assert list(validator.iter_errors(orphan))
+    for body in ['[pins.sda]\nc_in = "10 pH"\n', '[pins.sda]\ncolour = "red"\n',
+                 '[pins.sda]\nc_in = { value = "8 pF", basis = "hearsay" }\n',
+                 '[pins.sda]\nv_il = "0.3 VCC"\n', '[timing]\nf_max = "1 MHz x"\n']:
+        assert list(validator.iter_errors(tomllib.loads(part("x", "base", body)))), body
+    bad_id = dict(base, id="Not An Id")
+    assert list(validator.iter_errors(bad_id))
+
+
+def test_every_unit_kind_in_the_schema_has_an_example_that_parses():
+    schema = part_json_schema()
+    for name, node in schema["$defs"].items():
+        if "anyOf" not in node or name == "Level":
+            continue
+        string = node["anyOf"][0]
+        example = re.search(r"e\.g\. '([^']+)'", string["description"]).group(1)
+        unit = next(u for u, (_, ex) in UNITS.items() if ex == example)
+        assert re.match(string["pattern"], example)
+        parse(example, unit)
+
+
+# --- fuzz: random or mutated part files give a part or a pinlib error ----------------------
+
+_KEYS = ["format", "id", "title", "category", "extends", "abstract", "supply", "pins",
+         "timing", "sides", "bridge", "line", "provenance", "sda", "scl", "a", "b", "c_in",
+         "v_il", "v_ih", "function", "drive", "edges", "load", "rise", "value", "basis",
+         "source", "typ", "min", "max", "f_max", "kind", "capacitance", "recorded", "x"]
+_SCALARS = st.one_of(
+    st.sampled_from(["pinlib.part/1", "base", "x", "sensor", "i2c-sda", "open-drain", "8 pF",
+                     "0.7 VDD", "VDD - 0.4 V", "3.3 V", "1 MHz", "10 pH", "4k7", "datasheet",
+                     "10-90", "a", "", "mosfet"]),
+    st.text(max_size=8), st.integers(), st.floats(), st.booleans(), st.dates())
+_VALUES = st.recursive(
+    _SCALARS,
+    lambda children: st.one_of(st.lists(children, max_size=3),
+                               st.dictionaries(st.sampled_from(_KEYS), children, max_size=4)),
+    max_leaves=12)
+_DOCS = st.fixed_dictionaries(
+    {}, optional={"format": st.just("pinlib.part/1"), "id": st.sampled_from(["x", "y", "base"]),
+                  "extends": st.sampled_from(["base", "x", "y", "nobody", 3])}
+).flatmap(lambda d: st.dictionaries(st.sampled_from(_KEYS), _VALUES, max_size=6).map(
+    lambda extra: {**extra, **d}))
+
+
+# The built-in fixture is only read, so one instance can serve every generated example.
+_SLOW_FIXTURE = [HealthCheck.too_slow, HealthCheck.function_scoped_fixture]
+
+
+def _fuzz_load(files: dict[str, str]):
+    with tempfile.TemporaryDirectory() as tmp:
+        team = Path(tmp) / "team"
+        team.mkdir()
+        for name, text in files.items():
+            (team / name).write_text(text, encoding="utf-8")
+        lib = load_library([team], env=False)
+        for err in lib.problems:
+            assert isinstance(err, PinlibError)
+            assert err.message
+        try:
+            load_library([team], env=False, strict=True)
+        except PinlibError:
+            pass
+        return lib
+
+
+@settings(max_examples=150, deadline=None, suppress_health_check=_SLOW_FIXTURE)
+@given(docs=st.lists(_DOCS, min_size=1, max_size=3))
+def test_fuzz_random_part_files(builtin, docs):
+    import tomlkit
+
+    files = {}
+    for i, doc in enumerate(docs):
+        try:
+            files[f"f{i}.toml"] = tomlkit.dumps(doc)
+        except Exception:  # tomlkit cannot write every structure (e.g. mixed arrays)
+            continue
+    _fuzz_load(files)
+
+
+_MUTATIONS = st.lists(st.tuples(st.sampled_from(["delete", "duplicate", "replace", "insert"]),
+                                st.integers(0, 40), st.text(max_size=12)), min_size=1, max_size=4)
+
+
+@settings(max_examples=150, deadline=None, suppress_health_check=_SLOW_FIXTURE)
+@given(mutations=_MUTATIONS, child=st.booleans())
+def test_fuzz_mutated_part_files(builtin, mutations, child):
+    text = part("x", "base", '[pins.sda]\nc_in = "8 pF"\nv_il = "0.3 VDD"\n') if child else BASE
+    lines = text.splitlines()
+    for op, at, junk in mutations:
+        at = at % (len(lines) + 1)
+        if op == "delete" and at < len(lines):
+            del lines[at]
+        elif op == "duplicate" and at < len(lines):
+            lines.insert(at, lines[at])
+        elif op == "replace" and at < len(lines):
+            line = lines[at]
+            cut = len(line) // 2
+            lines[at] = line[:cut] + junk + line[cut + len(junk):]
+        else:
+            lines.insert(at, junk)
+    lib = _fuzz_load({"x.toml": "\n".join(lines) + "\n", "y.toml": BASE.replace('"base"', '"y"')})
+    for p in lib.parts.values():
+        assert p.id in ("base", "x", "y")

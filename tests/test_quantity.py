@@ -1,0 +1,239 @@
+"""Engineering quantities: parsing every unit form, errors, thresholds, formatting."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from pinlib.errors import UnitError
+from pinlib.quantity import UNITS, Threshold, format_si, parse, parse_ratio, parse_threshold
+
+# One inch is 25.4 mm and one mil a thousandth of it.
+INCH = 25.4e-3  # published: international yard and pound agreement (1959), 1 in = 25.4 mm
+MIL = 25.4e-6  # published: definition of the mil (thou), 1/1000 in = 25.4 µm
+
+# --- every unit form of the part and design formats --------------------------------------
+
+# (text, expected unit, SI value).  The SI prefixes: k 1e3, m 1e-3, µ 1e-6, n 1e-9,
+# p 1e-12 (from memory: BIPM SI Brochure, 9th ed., table 7, SI prefixes).
+UNIT_FORMS = [
+    ("4.7 kΩ", "Ω", 4700.0),  # from memory: SI prefix k = 1e3
+    ("4.7k ohm", "Ω", 4700.0),  # from memory: SI prefix k = 1e3
+    ("4k7", "Ω", 4700.0),  # from memory: IEC 60062 letter code, the letter stands for the point
+    ("2R2", "Ω", 2.2),  # from memory: IEC 60062 letter code, R marks the point of ohms
+    ("R47", "Ω", 0.47),  # from memory: IEC 60062 letter code
+    ("10pF", "F", 10e-12),  # from memory: SI prefix p = 1e-12
+    ("2.2 ns", "s", 2.2e-9),  # from memory: SI prefix n = 1e-9
+    ("3.3 V", "V", 3.3),  # no prefix
+    ("0.5 mA", "A", 0.5e-3),  # from memory: SI prefix m = 1e-3
+    ("1e-12 F", "F", 1e-12),  # E notation, no prefix
+    ("5 %", "%", 0.05),  # derived from 1 % = 1/100
+    ("0.8 pF/cm", "F/m", 0.8e-12 / 1e-2),  # derived from 1 cm = 1e-2 m
+    ("3.5 pF/in", "F/m", 3.5e-12 / INCH),  # derived from 1 in = 25.4 mm
+    ("400 kHz", "Hz", 400e3),  # from memory: SI prefix k = 1e3
+    ("35 µm", "m", 35e-6),  # from memory: SI prefix µ = 1e-6
+    ("1.6 mm", "m", 1.6e-3),  # from memory: SI prefix m = 1e-3
+    ("6 mil", "m", 6 * MIL),  # published: definition of the mil (thou)
+    ("1 in", "m", INCH),  # published: 1 in = 25.4 mm
+    ("58 ps/cm", "s/m", 58e-12 / 1e-2),  # derived from 1 cm = 1e-2 m
+    ("7 nH/in", "H/m", 7e-9 / INCH),  # derived from 1 in = 25.4 mm
+]
+
+
+@pytest.mark.parametrize(("text", "unit", "expected"), UNIT_FORMS)
+def test_every_unit_form(text, unit, expected):
+    assert parse(text, unit) == pytest.approx(expected, rel=1e-12)
+
+
+def test_mil_and_inch_definitions():
+    assert parse("1 mil", "m") == pytest.approx(25.4e-6, rel=1e-12)  # published: mil = 25.4 µm
+    assert parse("1000 mil", "m") == pytest.approx(parse("1 in", "m"), rel=1e-12)
+    assert parse("1 in", "m") == pytest.approx(25.4e-3, rel=1e-12)  # published: 1 in = 25.4 mm
+
+
+def test_decimal_prefixes_give_the_nearest_double():
+    # "2.2 ns" must be the double nearest 2.2e-9, not 2.2 * 1e-9 (2.2000000000000003e-09).
+    assert parse("2.2 ns", "s") == 2.2e-9  # derived from decimal reading of "2.2e-9"
+    assert parse("4.7 kΩ", "Ω") == 4700.0
+
+
+@pytest.mark.parametrize("text", ["4.7 kΩ", "4.7 kΩ", "4.7kohm", "4.7 k ohm", "4.7 KOhm",
+                                  "4700 R", "4K7"])
+def test_resistance_spellings(text):
+    # The ohm sign U+2126 and the Greek capital omega U+03A9 are both accepted.
+    assert parse(text, "Ω") == pytest.approx(4700.0, rel=1e-12)
+
+
+@pytest.mark.parametrize("text", ["1 µF", "1 μF", "1 uF"])
+def test_micro_spellings(text):
+    # U+00B5 micro sign, U+03BC Greek mu and the ASCII 'u' all mean 1e-6.
+    assert parse(text, "F") == pytest.approx(1e-6, rel=1e-12)  # from memory: SI prefix µ
+
+
+def test_percent_ratio():
+    assert parse_ratio("1 %") == pytest.approx(0.01, rel=1e-12)  # derived from 1 % = 1/100
+
+
+# --- errors -----------------------------------------------------------------------------
+
+def test_wrong_dimension_names_field_value_and_expected_unit():
+    with pytest.raises(UnitError) as info:
+        parse("10 pH", "F", field="pins.sda.c_in")
+    err = info.value
+    assert err.field == "pins.sda.c_in"
+    assert err.value == "10 pH"
+    assert "capacitance" in err.expected and "F" in err.expected
+    assert "pins.sda.c_in" in str(err) and "10 pH" in str(err) and "H" in err.problem
+
+
+@pytest.mark.parametrize(("value", "unit", "suggested"), [
+    ("8", "F", '"8 pF"'), (8, "F", '"8 pF"'), (3.3, "V", '"3.3 V"'), ("4700", "Ω", '"4700 kΩ"'),
+])
+def test_bare_number_suggests_the_unit(value, unit, suggested):
+    with pytest.raises(UnitError, match="bare number") as info:
+        parse(value, unit, field="x")
+    assert suggested in info.value.hint
+
+
+@pytest.mark.parametrize("value", [float("nan"), float("inf"), "nan pF", "inf pF", "1e400 pF",
+                                   "-1e400 F", "1e9999999 pF", "1e99999999999999999999 F"])
+def test_nan_and_inf_are_refused(value):
+    with pytest.raises(UnitError):
+        parse(value, "F", field="c_in")
+
+
+@pytest.mark.parametrize("text", ["", "   ", "pF", "10", "10 p F x", "ten pF", "10 mF/cm/cm",
+                                  "10 kmF", "33R", "10 m%", "1..2 V", "1,5 V", "3.3 v v"])
+def test_malformed_text(text):
+    with pytest.raises(UnitError):
+        parse(text, "F" if "F" in text else "V")
+
+
+def test_rkm_with_r_only_for_resistance():
+    with pytest.raises(UnitError, match="resistance"):
+        parse("2R2", "F")
+
+
+def test_new_si_prefixes_are_not_accepted():
+    # 'R' (ronna) and 'Q' (quetta) would turn a schematic's '33R' into 3.3e28.
+    assert parse("33R", "Ω") == 33.0
+    with pytest.raises(UnitError):
+        parse("33 RF", "F")
+    with pytest.raises(UnitError):
+        parse("3 QHz", "Hz")
+
+
+def test_types_that_are_not_quantities():
+    for value in (True, None, [1], {"value": "8 pF"}):
+        with pytest.raises(UnitError):
+            parse(value, "F")
+
+
+def test_unknown_expected_unit_is_a_programming_error():
+    with pytest.raises(ValueError, match="unknown expected unit"):
+        parse("1 F", "furlong")
+
+
+# --- thresholds -------------------------------------------------------------------------
+
+def test_relative_threshold_scalar_and_array():
+    vdd = np.array([1.8, 3.3, 5.0])
+    th = parse_threshold("0.7 VDD")
+    assert th == Threshold(0.7, 0.0, "0.7 VDD")
+    # published: UM10204 rev. 6, table 9: VIH min = 0.7·VDD; 2.31 V at 3.3 V derived from it
+    assert th.resolve(3.3) == pytest.approx(2.31, abs=1e-12)
+    np.testing.assert_allclose(th.resolve(vdd), [1.26, 2.31, 3.5], atol=1e-12)
+    assert isinstance(th.resolve(vdd), np.ndarray)
+
+
+def test_supply_minus_offset_threshold():
+    th = parse_threshold("VDD - 0.4 V")
+    assert (th.scale, th.offset) == (1.0, pytest.approx(-0.4, abs=1e-15))
+    assert th.resolve(3.3) == pytest.approx(2.9, abs=1e-12)  # derived from 3.3 V - 0.4 V
+    np.testing.assert_allclose(th.resolve(np.array([1.8, 5.0])), [1.4, 4.6], atol=1e-12)
+
+
+def test_absolute_threshold_against_an_array():
+    th = parse_threshold("2.0 V")
+    assert not th.relative
+    assert th.resolve(3.3) == 2.0
+    np.testing.assert_array_equal(th.resolve(np.array([3.0, 3.6])), [2.0, 2.0])
+
+
+@pytest.mark.parametrize(("text", "scale", "offset"), [
+    ("VDD + 0.5 V", 1.0, 0.5), ("70 % VDD", 0.7, 0.0), ("0.3*VDD", 0.3, 0.0),
+    ("-0.3 V", 0.0, -0.3), ("0.5 VDD - 100 mV", 0.5, -0.1), ("vdd", 1.0, 0.0),
+    ("1e-1 VDD", 0.1, 0.0),
+])
+def test_threshold_forms(text, scale, offset):
+    th = parse_threshold(text)
+    assert th.scale == pytest.approx(scale, abs=1e-12)
+    assert th.offset == pytest.approx(offset, abs=1e-12)
+
+
+@pytest.mark.parametrize("text", ["0.7 VCC", "0.7", "2 A", "VDD -", "", "1e400 VDD", 0.7, None])
+def test_bad_thresholds(text):
+    with pytest.raises(UnitError):
+        parse_threshold(text, field="v_ih")
+
+
+# --- formatting -------------------------------------------------------------------------
+
+@pytest.mark.parametrize(("value", "unit", "text"), [
+    (2200.0, "Ω", "2.2 kΩ"),  # the issue's examples of SI formatting (common practice)
+    (1.12e-10, "F", "112 pF"),
+    (2.1349e-6, "s", "2.13 µs"),
+    (3.3, "V", "3.3 V"),
+    (0.0, "F", "0 F"),
+    (0.05, "%", "5 %"),
+    (1.1e-10, "F/m", "1.1 pF/cm"),  # derived from 1.1 pF/cm = 1.1e-10 F/m
+])
+def test_format_si(value, unit, text):
+    assert format_si(value, unit) == text
+
+
+def test_format_si_round_trips_through_parse():
+    for value, unit in [(4700.0, "Ω"), (1.5e-12, "F"), (2.5e-9, "s"), (400e3, "Hz")]:
+        assert parse(format_si(value, unit), unit) == pytest.approx(value, rel=1e-3)
+
+
+def test_format_si_special_values():
+    assert format_si(None, "V") == "—"
+    assert format_si(True, "") == "yes"
+    assert "inf" in format_si(float("inf"), "s")
+
+
+# --- fuzz: any text gives a float or a UnitError, never another exception --------------
+
+_ALPHABET = st.sampled_from(list("0123456789.eE+-  kKmMunpµμfaGTRΩΩ%/·*×") +
+                            ["ohm", "VDD", "vdd", "V", "F", "Hz", "s", "A", "cm", "in", "mil",
+                             "nan", "inf", "1e400", "e-", "\t", "\n"])
+_TEXT = st.one_of(st.text(), st.lists(_ALPHABET, max_size=12).map("".join))
+_OTHER = st.one_of(st.none(), st.booleans(), st.integers(), st.floats(allow_nan=True),
+                   st.lists(st.integers(), max_size=2), st.dictionaries(st.text(), st.text()))
+
+
+@settings(max_examples=400, deadline=None)
+@given(text=st.one_of(_TEXT, _OTHER), unit=st.sampled_from(sorted(UNITS)))
+def test_fuzz_parse(text, unit):
+    try:
+        value = parse(text, unit, field="f")
+    except UnitError as err:
+        assert err.field == "f"
+        return
+    assert isinstance(value, float) and math.isfinite(value)
+
+
+@settings(max_examples=400, deadline=None)
+@given(text=st.one_of(_TEXT, _OTHER))
+def test_fuzz_parse_threshold(text):
+    try:
+        th = parse_threshold(text, field="v_il")
+    except UnitError:
+        return
+    assert math.isfinite(th.scale) and math.isfinite(th.offset)
+    assert math.isfinite(float(th.resolve(3.3)))
