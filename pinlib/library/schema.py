@@ -34,7 +34,7 @@ from __future__ import annotations
 import datetime as _dt
 from typing import Annotated, Literal
 
-from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, field_validator
+from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, field_validator, model_validator
 
 from pinlib.library.values import Sourced, sourced_parser, threshold_parser
 
@@ -94,12 +94,13 @@ class Edge(_Model):
     levels: Literal["10-90", "20-80"] = "10-90"
     vdd: Voltage | None = None  # the supply the point was stated at, when it matters
 
-    @field_validator("fall")
-    @classmethod
-    def _one_edge(cls, v, info):
-        if v is None and info.data.get("rise") is None:
+    @model_validator(mode="after")
+    def _one_edge(self):
+        # An after-validator, so it also runs when neither key is given (defaults are
+        # not validated field by field).
+        if self.rise is None and self.fall is None:
             raise ValueError("an edge point needs rise or fall (or both)")
-        return v
+        return self
 
 
 class Pin(_Model):
