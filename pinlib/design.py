@@ -53,7 +53,7 @@ SIGNAL_FUNCTION = {"sda": "i2c-sda", "scl": "i2c-scl", "sclk": "spi-sclk", "copi
                    "cipo": "spi-cipo", "cs": "spi-cs"}
 
 
-def _unit(unit, lo=None, hi=None):
+def _unit_validator(unit, lo=None, hi=None):
     def validate(raw, info=None):
         x = parse(raw, unit, field=getattr(info, "field_name", None))
         if x < 0 and unit not in ("V",):
@@ -63,18 +63,24 @@ def _unit(unit, lo=None, hi=None):
                               expected=f"between {lo:g} and {hi:g} {unit}")
         return x
 
-    return Annotated[float, BeforeValidator(validate)]
+    return validate
+
+
+def _unit(unit, lo=None, hi=None):
+    return Annotated[float, BeforeValidator(_unit_validator(unit, lo, hi))]
 
 
 def _auto_or(unit, lo=None, hi=None, words=("auto",)):
-    inner = _unit(unit, lo, hi)
+    # Parse here: handed on as text, "2.2 kΩ" would satisfy the str side of the union and
+    # stay a string.
+    quantity = _unit_validator(unit, lo, hi)
 
     def validate(raw, info=None):
         if isinstance(raw, str) and raw.strip().lower() in words:
             return raw.strip().lower()
-        return raw
+        return quantity(raw, info)
 
-    return Annotated[str | inner, BeforeValidator(validate)]  # type: ignore[valid-type]
+    return Annotated[str | float, BeforeValidator(validate)]
 
 
 Length = _unit("m", 0.0, 1000.0)
@@ -523,6 +529,12 @@ def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bu
     raws = list(rb.segment)
     if raws and rb.devices:
         raise err("devices go in the segments when a bus has segments", bloc + ("devices",))
+    # Capacitance belongs to one stretch of bus: inherited by every segment it would be
+    # counted once per segment.
+    for key in ("trace", "cables", "extra_capacitance"):
+        if raws and getattr(rb, key):
+            raise err(f"{key} goes in the segments when a bus has segments", bloc + (key,),
+                      hint="give each [[bus.segment]] its own")
     if not raws:
         raws = [RawSegment(id=rb.id)]
         seg_locs = [bloc]

@@ -1,0 +1,85 @@
+"""A design file -> results: each bus goes to the engine of its protocol.
+
+Open-drain buses (``i2c``, ``smbus``) go to :mod:`pinlib.buses.opendrain`; push-pull
+buses (``spi``, ``gpio``) to :mod:`pinlib.buses.pushpull` when that engine is present
+(it is imported lazily; without it such a bus is reported with a note and no checks).
+"""
+
+from __future__ import annotations
+
+import importlib
+import os
+
+from pinlib.design import Bus, Design, load_design
+from pinlib.result import BusResult, DesignResult
+
+__all__ = ["ENGINES", "check_design", "check_file", "evaluate_bus"]
+
+#: The engine module of each protocol; each has ``evaluate_bus(bus, design) -> BusResult``.
+ENGINES = {
+    "i2c": "pinlib.buses.opendrain",
+    "smbus": "pinlib.buses.opendrain",
+    "spi": "pinlib.buses.pushpull",
+    "gpio": "pinlib.buses.pushpull",
+}
+
+
+def evaluate_bus(bus: Bus, design: Design) -> BusResult:
+    """Evaluate one bus with the engine of its protocol.
+
+    A protocol whose engine module is not installed yet gives a result with a note and
+    no checks (status ``pass``) rather than an error.
+    """
+    name = ENGINES.get(bus.protocol)
+    if name is None:
+        result = BusResult(id=bus.id, protocol=bus.protocol)
+        result.notes.append(f"no engine for protocol '{bus.protocol}': not checked")
+        return result
+    try:
+        module = importlib.import_module(name)
+    except ModuleNotFoundError as exc:
+        if exc.name != name:
+            raise
+        result = BusResult(id=bus.id, protocol=bus.protocol)
+        result.notes.append(f"skipped: the {bus.protocol} engine ({name}) is not available yet")
+        return result
+    return module.evaluate_bus(bus, design)
+
+
+def check_design(design: Design) -> DesignResult:
+    """Evaluate every bus of a loaded design.
+
+    Parameters
+    ----------
+    design : Design
+        A design from :func:`pinlib.design.load_design`.
+
+    Returns
+    -------
+    DesignResult
+        One :class:`~pinlib.result.BusResult` per bus, in file order.
+    """
+    result = DesignResult(design=design.title,
+                          path=str(design.path) if design.path else None,
+                          warn_margin=design.warn_margin)
+    for bus in design.buses:
+        result.buses.append(evaluate_bus(bus, design))
+    return result
+
+
+def check_file(path: str | os.PathLike, library_folders=()) -> DesignResult:
+    """Load a design file and evaluate it.
+
+    Parameters
+    ----------
+    path : path
+        The design file (``format = "pinlib.design/1"``).
+    library_folders : iterable of paths
+        Extra team library folders (they take precedence over the design's own).
+
+    Raises
+    ------
+    DesignError, LibraryError, UnitError
+        For a design that cannot be loaded; the message names file, line and field.
+    """
+    return check_design(load_design(path, library_folders=library_folders))

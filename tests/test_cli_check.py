@@ -1,0 +1,154 @@
+"""Tests of ``pinlib check``: the demo design, the JSON shape of DESIGN.md, exit codes."""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from pinlib.cli import main
+from pinlib.result import CAUTION
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"
+PARTS = Path(__file__).parent / "data" / "parts"
+
+# the figure names issue 3 requires of every open-drain segment
+REQUIRED = ["bus_capacitance", "pullup", "rp_min", "rp_max", "rise_time", "rise_time_10_90",
+            "fall_time", "v_ol", "v_oh", "noise_margin_low", "noise_margin_high",
+            "pullup_power", "scl_frequency_effective", "sda_setup_margin"]
+UNITS = {"bus_capacitance": "F", "pullup": "Ω", "rp_min": "Ω", "rp_max": "Ω", "rise_time": "s",
+         "rise_time_10_90": "s", "fall_time": "s", "v_ol": "V", "v_oh": "V",
+         "noise_margin_low": "V", "noise_margin_high": "V", "pullup_power": "W",
+         "scl_frequency_effective": "Hz", "sda_setup_margin": "s"}
+CHECK_KEYS = {"id", "status", "value", "limit", "unit", "margin", "source", "message"}
+
+
+def run_json(args, capsys):
+    code = main(["check", *args, "--json"])
+    out = capsys.readouterr().out
+    return code, json.loads(out)
+
+
+def assert_group(g):
+    assert g["status"] in ("pass", "warn", "fail")
+    for name in REQUIRED:
+        assert name in g["figures"], name
+        f = g["figures"][name]
+        assert set(f) == {"value", "unit"} and f["unit"] == UNITS[name]
+        assert f["value"] is None or isinstance(f["value"], float)
+    assert g["checks"], "no checks"
+    for c in g["checks"]:
+        assert CHECK_KEYS <= set(c)
+        assert c["status"] in ("pass", "warn", "fail")
+        assert c["source"]
+    worst = max(("pass", "warn", "fail").index(c["status"]) for c in g["checks"])
+    assert g["status"] == ("pass", "warn", "fail")[worst]
+
+
+def test_demo_design_json(capsys):
+    code, doc = run_json([str(DEMO)], capsys)
+    assert code in (0, 1)
+    assert doc["format"] == "pinlib.result/1"
+    assert doc["design"].startswith("Greenhouse climate logger")
+    assert doc["caution"] == CAUTION
+    assert code == (1 if doc["status"] == "fail" else 0)
+    buses = {b["id"]: b for b in doc["buses"]}
+    assert set(buses) == {"sensors", "power"}
+    sensors = buses["sensors"]
+    assert sensors["protocol"] == "i2c" and sensors["lines"] == []
+    assert [s["id"] for s in sensors["segments"]] == ["main-3v3", "sensor-1v8"]
+    for seg in sensors["segments"]:
+        assert_group(seg)
+    power = buses["power"]
+    assert power["protocol"] == "smbus" and "segments" not in power
+    assert_group(power)   # a single-segment bus carries its figures itself
+    rise = next(c for c in power["checks"] if c["id"] == "rise-time")
+    assert rise["details"]["definition"] == "smbus"
+    # mostly passing: the demo is a working board
+    statuses = [c["status"] for b in doc["buses"] for g in [b, *b.get("segments", [])]
+                for c in g["checks"]]
+    assert statuses.count("pass") > 0.8 * len(statuses)
+
+
+def test_demo_design_text(capsys):
+    code = main(["check", str(DEMO)])
+    out = capsys.readouterr().out
+    assert code in (0, 1)
+    assert out.startswith("Caution: pinlib's figures are estimates")
+    assert "segment main-3v3" in out and "bus power (smbus)" in out
+    # figures carry SI prefixes, checks their source
+    assert " pF" in out and " kΩ" in out and " ns" in out
+    assert "UM10204 rev. 6, table 10" in out and "SMBus specification version 3.1" in out
+
+
+def test_exit_codes(tmp_path, capsys):
+    head = f"""format = "pinlib.design/1"
+title = "exit codes"
+library = ["{PARTS.as_posix()}"]
+
+[[bus]]
+id = "b"
+protocol = "i2c"
+mode = "fast"
+supply = "3.3 V"
+extra_capacitance = "EXTRA"
+devices = [
+  {{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }},
+  {{ ref = "U2", part = "t-target" }},
+]
+"""
+    ok = tmp_path / "ok.toml"
+    ok.write_text(head.replace("EXTRA", "80 pF"), encoding="utf-8")
+    assert main(["check", str(ok)]) == 0
+    bad = tmp_path / "bad.toml"
+    bad.write_text(head.replace("EXTRA", "380 pF"), encoding="utf-8")  # no pull-up fits
+    assert main(["check", str(bad)]) == 1
+    broken = tmp_path / "broken.toml"
+    broken.write_text(head.replace("EXTRA", "380 pH"), encoding="utf-8")
+    assert main(["check", str(broken)]) == 2
+    assert "field 'bus[0].extra_capacitance'" in capsys.readouterr().err
+
+
+def test_library_option(tmp_path, capsys):
+    design = tmp_path / "d.toml"
+    design.write_text("""format = "pinlib.design/1"
+title = "team library from the command line"
+
+[[bus]]
+id = "b"
+protocol = "i2c"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "t-ctrl-3v3", role = "controller" },
+  { ref = "U2", part = "t-target" },
+]
+""", encoding="utf-8")
+    assert main(["check", str(design)]) == 2
+    assert "unknown part" in capsys.readouterr().err
+    assert main(["check", str(design), "--library", str(PARTS)]) == 0
+
+
+def test_help_has_an_example(capsys):
+    with pytest.raises(SystemExit) as info:
+        main(["check", "--help"])
+    assert info.value.code == 0
+    out = capsys.readouterr().out
+    assert "pinlib check workbooks/designs/demo-board.toml" in out
+    assert "--json" in out and "--library" in out
+
+
+def test_no_pandas_or_altair_on_the_check_path():
+    code = (
+        "import sys, io, contextlib\n"
+        "from pinlib.cli import main\n"
+        "with contextlib.redirect_stdout(io.StringIO()):\n"
+        f"    main(['check', {str(DEMO)!r}])\n"
+        "print(','.join(m for m in ('pandas', 'altair', 'ipywidgets') if m in sys.modules))\n"
+    )
+    proc = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                          cwd=ROOT, timeout=60, check=True)
+    assert proc.stdout.strip() == ""

@@ -1,0 +1,584 @@
+"""Tests of the open-drain engine (pinlib.buses.opendrain) against UM10204, SMBus 3.1,
+a published application-note example, ngspice and the eseries package."""
+
+from __future__ import annotations
+
+import math
+from pathlib import Path
+
+import eseries
+import pytest
+from spice import have_ngspice, run_deck
+
+from pinlib.buses import opendrain
+from pinlib.check import check_design
+from pinlib.design import load_design
+from pinlib.physics.rc import RISE_10_90, RISE_30_70
+
+PARTS = Path(__file__).parent / "data" / "parts"
+spice = pytest.mark.spice
+needs_ngspice = pytest.mark.skipif(not have_ngspice(), reason="ngspice not on PATH")
+
+HEAD = """format = "pinlib.design/1"
+title = "engine test"
+"""
+
+
+def design(tmp_path, body: str):
+    path = tmp_path / "d.toml"
+    path.write_text(HEAD + body, encoding="utf-8")
+    return load_design(path, library_folders=[PARTS])
+
+
+def bus_result(tmp_path, body: str, index: int = 0):
+    d = design(tmp_path, body)
+    return opendrain.evaluate_bus(d.buses[index], d)
+
+
+def one_bus(mode="fast", supply="3.3 V", vtol="0 %", ptol="0 %", pullup="auto", extra="0 pF",
+            devices=None, protocol="i2c", more=""):
+    devices = devices or ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+                          '{ ref = "U2", part = "t-target" }']
+    return f"""
+[[bus]]
+id = "b"
+protocol = "{protocol}"
+mode = "{mode}"
+supply = "{supply}"
+supply_tolerance = "{vtol}"
+pullup = "{pullup}"
+pullup_tolerance = "{ptol}"
+extra_capacitance = "{extra}"
+{more}
+devices = [
+  {(',' + chr(10) + '  ').join(devices)},
+]
+"""
+
+
+def fig(res, name):
+    return res.figures[name].value
+
+
+# --------------------------------------------------------------------------- UM10204 numbers
+
+
+def test_rp_min_3v3_3ma(tmp_path):
+    # derived from UM10204 rev. 6 §7.1 eq. 2, (3.3 - 0.4)/3 mA = 966.7 Ω (REFERENCES.md [D])
+    res = bus_result(tmp_path, one_bus())
+    assert fig(res, "rp_min") == pytest.approx(966.7, abs=0.05)
+
+
+def test_rp_max_400pf_fast_mode(tmp_path):
+    # derived from UM10204 rev. 6 eq. 1, 300 ns / (0.8473 · 400 pF) = 885.2 Ω (REFERENCES.md [D]);
+    # the two pins carry 10 pF each, the rest is extra capacitance
+    res = bus_result(tmp_path, one_bus(extra="380 pF"))
+    assert fig(res, "bus_capacitance") == pytest.approx(400e-12, rel=1e-12)
+    assert fig(res, "rp_max") == pytest.approx(885.2, abs=0.05)
+
+
+@pytest.mark.parametrize("mode,extra,rp_max,tol", [
+    # derived from UM10204 rev. 6 eq. 1 with the table 10 tr limits (REFERENCES.md [D])
+    ("fast", "180 pF", 1770.0, 0.5),        # Fast-mode, 200 pF
+    ("fast", "80 pF", 3541.0, 0.5),         # Fast-mode, 100 pF
+    ("standard", "380 pF", 2951.0, 0.5),    # Standard-mode, 400 pF
+    ("fast-plus", "530 pF", 257.5, 0.05),   # Fast-mode Plus, 550 pF
+])
+def test_rp_max_other_modes(tmp_path, mode, extra, rp_max, tol):
+    res = bus_result(tmp_path, one_bus(mode=mode, extra=extra))
+    assert fig(res, "rp_max") == pytest.approx(rp_max, abs=tol)
+
+
+@pytest.mark.parametrize("mode,supply,part,rp_min,tol", [
+    # derived from UM10204 rev. 6 eq. 2 (REFERENCES.md [D]):
+    ("fast", "3.3 V", "t-target-6ma", 450.0, 0.5),    # Fm alternative sink, 6 mA at 0.6 V
+    # the specification's own sink points, taken for parts that state none (table 9):
+    ("fast-plus", "3.3 V", "t-target-bare", 145.0, 0.5),  # Fm+ 20 mA at 0.4 V
+    ("fast", "1.8 V", "t-target-bare", 720.0, 0.5),       # VOL2 0.2·VDD at 2 mA
+    ("fast", "5 V", "t-target-bare", 1533.0, 0.5),        # 3 mA at 0.4 V, 5.0 V
+])
+def test_rp_min_other_sinks(tmp_path, mode, supply, part, rp_min, tol):
+    devices = [f'{{ ref = "U1", part = "{part}", role = "controller" }}',
+               f'{{ ref = "U2", part = "{part}" }}']
+    res = bus_result(tmp_path, one_bus(mode=mode, supply=supply, devices=devices))
+    assert fig(res, "rp_min") == pytest.approx(rp_min, abs=tol)
+
+
+def test_um10204_724_example(tmp_path):
+    # published: UM10204 rev. 6 §7.2.4: VDD = 5 V + 10 %, VOL 0.4 V at 3 mA -> Rp(min) 1.7 kΩ
+    devices = ['{ ref = "U1", part = "t-target-bare", role = "controller" }',
+               '{ ref = "U2", part = "t-target-bare" }']
+    res = bus_result(tmp_path, one_bus(supply="5 V", vtol="10 %", devices=devices))
+    assert fig(res, "rp_min") == pytest.approx(1.7e3, abs=50.0)
+
+
+def test_slva689_example(tmp_path):
+    # published: SLVA689 (Feb 2015) worked example, seen in a secondary source [C2]:
+    # Fast-mode, 3.3 V, Cb 200 pF, VOL 0.4 V, IOL 3 mA, tr 300 ns -> 966.667 Ω <= Rp <= 1.77 kΩ
+    res = bus_result(tmp_path, one_bus(extra="180 pF"))
+    assert fig(res, "bus_capacitance") == pytest.approx(200e-12, rel=1e-12)
+    assert fig(res, "rp_min") == pytest.approx(966.667, abs=5e-4)
+    assert fig(res, "rp_max") == pytest.approx(1.77e3, abs=5.0)
+
+
+# --------------------------------------------------------------------------- rise time vs ngspice
+
+
+@spice
+@needs_ngspice
+def test_rise_time_against_ngspice(tmp_path):
+    # the engine's worst-case rise (tolerances zero: Rp and Cb as given) against an ngspice
+    # transient of the same RC: the pull-up to VDD charging Cb from 0 V
+    res = bus_result(tmp_path, one_bus(pullup="2.2 kΩ", extra="127 pF"))
+    cb, rp = fig(res, "bus_capacitance"), fig(res, "pullup")
+    assert rp == pytest.approx(2200.0)
+    deck = f"""pull-up charging the bus capacitance
+V1 vdd 0 3.3
+R1 vdd bus {rp}
+C1 bus 0 {cb} IC=0
+.tran 0.1n 3u 0 0.1n UIC
+.meas tran tr3070 TRIG v(bus) VAL=0.99 RISE=1 TARG v(bus) VAL=2.31 RISE=1
+.meas tran tr1090 TRIG v(bus) VAL=0.33 RISE=1 TARG v(bus) VAL=2.97 RISE=1
+.end
+"""
+    got = run_deck(deck, ["tr3070", "tr1090"])
+    assert fig(res, "rise_time") == pytest.approx(got["tr3070"], rel=0.01)
+    assert fig(res, "rise_time_10_90") == pytest.approx(got["tr1090"], rel=0.01)
+
+
+def test_rise_time_is_worst_case(tmp_path):
+    # derived from UM10204 §7.1: tr = 0.8473·Rp·Cb with Rp at +tolerance
+    res = bus_result(tmp_path, one_bus(pullup="2.2 kΩ", ptol="5 %", extra="80 pF"))
+    assert fig(res, "rise_time") == pytest.approx(RISE_30_70 * 2200 * 1.05 * 100e-12, rel=1e-9)
+    assert fig(res, "rise_time_10_90") == pytest.approx(RISE_10_90 * 2200 * 1.05 * 100e-12,
+                                                        rel=1e-9)
+
+
+# --------------------------------------------------------------------------- auto and advice
+
+
+def test_400pf_fast_mode_fails_with_quantified_advice(tmp_path):
+    # REFERENCES.md [D]: a Fast-mode bus at 3.3 V with 400 pF and 3 mA sinks has no passive
+    # pull-up (885 Ω < 967 Ω)
+    res = bus_result(tmp_path, one_bus(extra="380 pF"))
+    assert res.status == "fail"
+    chk = res.check("pullup-window")
+    assert chk.status == "fail"
+    fix = chk.fix
+    # derived from eq. 1 and 2: Cb(max) = 300 ns / (0.8473 · 966.7 Ω) = 366 pF
+    assert "bring Cb below 366 pF (now 400 pF" in fix
+    # derived from eq. 1 with the Standard-mode tr 1 µs: 2.95 kΩ (REFERENCES.md: 2951 Ω)
+    assert "I2C Standard-mode" in fix and "allows Rp up to 2.95 kΩ" in fix
+    assert "bus buffer splitting the bus into 2 segments of under 366 pF" in fix
+    # derived from I = C·ΔV/t: 400 pF · 0.4 · 3.3 V / 300 ns = 1.76 mA (UM10204 §5.1: 3 mA max)
+    assert "current-source) pull-up of at least 1.76 mA" in fix
+    # derived from eq. 2 solved for IOL at 885.2 Ω: (3.3 - 0.4) / 885.2 = 3.28 mA
+    assert "drivers sinking at least 3.28 mA at 400 mV" in fix
+
+
+def test_150pf_passes_with_an_e24_value_inside_the_window(tmp_path):
+    res = bus_result(tmp_path, one_bus(extra="130 pF", ptol="1 %"))
+    assert res.status == "pass"
+    r = fig(res, "pullup_resistor")
+    # checked against the eseries package: the value is an E24 value
+    assert eseries.find_nearest(eseries.E24, r) == pytest.approx(r)
+    # derived from eq. 1 and 2: window [966.7 Ω, 300 ns / (0.8473 · 150 pF) = 2360 Ω]
+    assert 966.7 / 0.99 <= r <= 2360.0 / 1.01
+    # the choice maximises the smaller tolerance-adjusted margin: no E24 value does better
+    def worst(x):
+        return min((x * 0.99 - 966.67) / 966.67, (2360.5 - x * 1.01) / 2360.5)
+    candidates = [v for v in eseries.erange(eseries.E24, 100, 10e3)]
+    assert worst(r) == pytest.approx(max(worst(x) for x in candidates), abs=1e-3)
+
+
+def test_fixed_pullup_outside_the_window_says_what_fits(tmp_path):
+    res = bus_result(tmp_path, one_bus(pullup="680 Ω", extra="130 pF"))
+    chk = res.check("pullup-window")
+    assert chk.status == "fail"
+    assert "a design resistor between 967 Ω and 2.36 kΩ fits" in chk.fix
+    assert "E24: 1 kΩ" in chk.fix
+
+
+# --------------------------------------------------------------------------- SMBus
+
+
+def test_smbus_rise_definition(tmp_path):
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+               '{ ref = "U9", part = "t-gauge-smbus" }']
+    res = bus_result(tmp_path, one_bus(protocol="smbus", mode="100k", pullup="2.2 kΩ",
+                                       extra="80 pF", devices=devices))
+    # derived from ln((VDD - 0.65)/(VDD - 1.5)) with the SMBus 3.1 points: 0.387 at 3.3 V
+    assert fig(res, "rise_factor") == pytest.approx(0.387, abs=5e-4)
+    assert fig(res, "rise_time") == pytest.approx(math.log(2.65 / 1.8) * 2200 * 100e-12,
+                                                  rel=1e-9)
+    # published: SMBus 3.1 table 2, tR max 1000 ns for the 100 kHz class
+    assert fig(res, "rp_max") == pytest.approx(1e-6 / (math.log(2.65 / 1.8) * 100e-12),
+                                               rel=1e-9)
+    chk = res.check("rise-time")
+    assert chk.limit == pytest.approx(1000e-9)
+    assert chk.details["definition"] == "smbus"
+    assert "SMBus" in chk.source
+    assert any("SMBus definition" in n for n in res.notes)
+
+
+def test_smbus_rise_factor_at_1v8(tmp_path):
+    devices = ['{ ref = "U1", part = "t-target-bare", role = "controller" }',
+               '{ ref = "U9", part = "t-target-bare" }']
+    res = bus_result(tmp_path, one_bus(protocol="smbus", mode="100k", supply="1.8 V",
+                                       devices=devices))
+    # derived from ln((1.8 - 0.65)/(1.8 - 1.5)) = 1.344 (REFERENCES.md [D])
+    assert fig(res, "rise_factor") == pytest.approx(1.344, abs=5e-4)
+
+
+def test_i2c_says_30_70(tmp_path):
+    res = bus_result(tmp_path, one_bus())
+    assert res.check("rise-time").details["definition"] == "30-70"
+    # published: UM10204 rev. 6 §7.1, 0.8473
+    assert fig(res, "rise_factor") == pytest.approx(0.8473, abs=5e-5)
+
+
+# --------------------------------------------------------------------------- part pull-ups
+
+
+def test_part_pullups_in_parallel(tmp_path):
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+               '{ ref = "M1", part = "t-module-4k7" }', '{ ref = "M2", part = "t-module-4k7" }',
+               '{ ref = "M3", part = "t-module-4k7" }']
+    res = bus_result(tmp_path, one_bus(pullup="2.2 kΩ", vtol="5 %", devices=devices))
+    # derived from 1/R = 1/2.2k + 3/4.7k = 914.9 Ω, below Rp(min) = (3.465 - 0.4)/3 mA
+    r_eff = 1 / (1 / 2200 + 3 / 4700)
+    assert fig(res, "pullup") == pytest.approx(r_eff, rel=1e-9)
+    assert fig(res, "rp_min") == pytest.approx((3.465 - 0.4) / 3e-3, rel=1e-9)
+    chk = res.check("pullup-window")
+    assert chk.status == "fail"
+    contributors = chk.details["contributors"]
+    assert [c["ref"] for c in contributors] == ["design", "M1", "M2", "M3"]
+    # removing one module leaves 2.2k ∥ 4.7k ∥ 4.7k = 1136 Ω, inside the window
+    assert "remove or disable M1 SDA (4.7 kΩ, on the part)" in chk.fix
+    assert "M2" not in chk.fix.split("remove or disable")[1].split(";")[0]
+
+
+def test_internal_pullups_count_only_when_enabled(tmp_path):
+    on = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller", internal_pullups = true }',
+          '{ ref = "U2", part = "t-target" }']
+    res = bus_result(tmp_path, one_bus(pullup="2.2 kΩ", devices=on))
+    # derived: 2.2 kΩ ∥ 40 kΩ
+    assert fig(res, "pullup") == pytest.approx(1 / (1 / 2200 + 1 / 40e3), rel=1e-9)
+    res = bus_result(tmp_path, one_bus(pullup="2.2 kΩ"))
+    assert fig(res, "pullup") == pytest.approx(2200.0)
+
+
+# --------------------------------------------------------------------------- defaults and levels
+
+
+def test_pin_without_c_in_taken_at_10_pf(tmp_path):
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+               '{ ref = "U2", part = "t-target-bare" }']
+    res = bus_result(tmp_path, one_bus(devices=devices))
+    # published: UM10204 rev. 6 table 9, Ci max 10 pF (the controller states 10 pF too)
+    assert fig(res, "bus_capacitance") == pytest.approx(20e-12, rel=1e-12)
+    assert any("no c_in stated" in n and "U2" in n for n in res.notes)
+
+
+def test_low_level_with_series_resistor(tmp_path):
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller", '
+               'series_resistor = "300 Ω" }',
+               '{ ref = "U2", part = "t-target", series_resistor = "300 Ω" }']
+    res = bus_result(tmp_path, one_bus(pullup="2.2 kΩ", devices=devices))
+    # derived from the divider: (133.3 + 300) / (133.3 + 300 + 2200) of 3.3 V
+    r = 0.4 / 3e-3 + 300
+    assert fig(res, "v_ol") == pytest.approx(3.3 * r / (r + 2200), rel=1e-9)
+    chk = res.check("v-ol")
+    assert chk.limit == pytest.approx(0.99)  # published: UM10204 table 9, VIL 0.3·VDD
+
+
+def test_high_level_after_leakage(tmp_path):
+    res = bus_result(tmp_path, one_bus(pullup="10 kΩ"))
+    # derived: 2 pins × 1 µA through 10 kΩ
+    assert fig(res, "v_oh") == pytest.approx(3.3 - 2e-6 * 10e3, rel=1e-12)
+    # published: UM10204 table 10, VnH 0.2·VDD
+    assert res.check("noise-margin-high").limit == pytest.approx(0.66)
+
+
+def test_fall_time_bound_and_tf_min(tmp_path):
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+               '{ ref = "U2", part = "t-target-slope" }']
+    res = bus_result(tmp_path, one_bus(pullup="2.2 kΩ", devices=devices))
+    chk = res.check("fall-time")
+    assert chk.limit == pytest.approx(300e-9)  # published: UM10204 table 10, Fm tf max
+    slope = res.check("fall-time-min")
+    # published: UM10204 rev. 6 table 10: tf min 20 ns × VDD/5.5 V = 12 ns at 3.3 V
+    assert slope.limit == pytest.approx(12e-9, abs=1e-12)
+    assert slope.status == "fail"  # the part states 5 ns
+    assert any("responsibility" in n and "U1" in n for n in res.notes)
+
+
+def test_setup_budget(tmp_path):
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+               '{ ref = "U2", part = "t-target" }']
+    res = bus_result(tmp_path, one_bus(pullup="2.2 kΩ", devices=devices))
+    chk = res.check("setup-time")
+    # published: UM10204 table 10, Fast-mode tSU;DAT 100 ns; the budget is
+    # tLOW − tVD;DAT − tr (derived), tLOW taken as 2.5 µs · 1.3/1.9 for a 400 kHz clock
+    t_low = 2.5e-6 * 1.3 / 1.9
+    assert chk.limit == pytest.approx(100e-9)
+    assert chk.value == pytest.approx(t_low - 0.9e-6 - fig(res, "rise_time"), rel=1e-9)
+    assert fig(res, "sda_setup_margin") == pytest.approx(chk.value - 100e-9, rel=1e-9)
+    # derived from UM10204 eq. 3 with the counted periods and this bus's edges
+    f = 1 / (2.5e-6 + fig(res, "rise_time_scl") + fig(res, "fall_time_scl"))
+    assert fig(res, "scl_frequency_effective") == pytest.approx(f, rel=1e-9)
+
+
+# --------------------------------------------------------------------------- domains and power
+
+
+def test_abs_max_against_the_pullup_rail(tmp_path):
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+               '{ ref = "U3", part = "t-sensor-1v8", supply = "1.8 V" }']
+    res = bus_result(tmp_path, one_bus(vtol="5 %", devices=devices))
+    chk = res.check("input-voltage")
+    assert chk.status == "fail" and chk.subject == "U3"
+    # derived: abs_max VDD + 0.3 V at the sensor's own rail minimum 1.71 V; rail 3.465 V
+    assert chk.limit == pytest.approx(1.71 + 0.3)
+    assert chk.value == pytest.approx(3.465)
+    assert "translator" in chk.fix and "1.8 V" in chk.fix
+    # its VIH (0.7 · 1.89 V) is met by the 3.3 V rail, its VIL (0.3 · 1.71 V) too
+    assert res.check("v-oh").status == "pass"
+
+
+def test_switched_device_fails_with_the_clamp_current(tmp_path):
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+               '{ ref = "U2", part = "t-target", switched = true }']
+    res = bus_result(tmp_path, one_bus(pullup="2.2 kΩ", ptol="1 %", devices=devices))
+    chk = res.check("power-off")
+    assert chk.status == "fail" and chk.subject == "U2"
+    # derived from Ohm's law with a 0.6 V clamp drop (common practice): (3.3 - 0.6) / 2.178 kΩ
+    assert chk.details["clamp_current"]["SDA"] == pytest.approx(2.7 / (2200 * 0.99), rel=1e-9)
+    assert "power-off-tolerant" in chk.fix
+    devices[1] = '{ ref = "U2", part = "t-sensor-1v8-tolerant", supply = "3.3 V", switched = true }'
+    res = bus_result(tmp_path, one_bus(pullup="2.2 kΩ", devices=devices))
+    assert res.check("power-off").status == "pass"
+
+
+# --------------------------------------------------------------------------- bridging parts
+
+
+def translator_bus(part="t-fet-translator", low="1.8 V", vtol="0 %"):
+    return f"""
+[[bus]]
+id = "x"
+protocol = "i2c"
+mode = "fast"
+
+[[bus.segment]]
+id = "high"
+supply = "3.3 V"
+supply_tolerance = "{vtol}"
+pullup = "2.2 kΩ"
+pullup_tolerance = "0 %"
+devices = [
+  {{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }},
+  {{ ref = "Q1", part = "{part}", side = "b" }},
+]
+
+[[bus.segment]]
+id = "low"
+supply = "{low}"
+supply_tolerance = "{vtol}"
+pullup = "2.2 kΩ"
+pullup_tolerance = "0 %"
+devices = [
+  {{ ref = "Q1", part = "{part}", side = "a" }},
+  {{ ref = "U3", part = "t-sensor-1v8" }},
+]
+"""
+
+
+@spice
+@needs_ngspice
+def test_translator_levels_against_ngspice(tmp_path):
+    res = bus_result(tmp_path, translator_bus())
+    high, low = res.segments
+    assert (high.id, low.id) == ("high", "low")
+    # the 1.8 V sensor sinks (0.2 · 1.8 V / 2 mA = 180 Ω) both pull-ups; the 3.3 V side's low
+    # level sits I·R_on (10 Ω) above the 1.8 V side's; ngspice solves the same network
+    deck = """pass-transistor translator, low side driver sinking
+VL vl 0 1.8
+VH vh 0 3.3
+RPL vl nl 2200
+RPH vh nh 2200
+RON nl nh 10
+RS nl 0 180
+.tran 1n 10n
+.meas tran vnl FIND v(nl) AT=5n
+.meas tran vnh FIND v(nh) AT=5n
+.end
+"""
+    got = run_deck(deck, ["vnl", "vnh"])
+    assert high.figures["v_ol"].value == pytest.approx(got["vnh"], rel=0.01)
+    sink = next(c for c in low.checks if c.id == "sink-current" and "U3" in c.subject)
+    assert sink.value == pytest.approx(got["vnl"] / 180.0, rel=0.01)
+    assert low.figures["v_ol"].value == pytest.approx(got["vnl"], rel=0.01)
+
+
+def test_translator_gate_drive(tmp_path):
+    # gate overdrive = low rail (min) − threshold: 1.71 − 1.2 V = 0.51 V -> warning
+    res = bus_result(tmp_path, translator_bus(vtol="5 %"))
+    gate = res.segments[1].check("bridge-gate-drive")
+    assert gate.status == "warn"
+    assert gate.value == pytest.approx(1.71 - 1.2)
+    assert res.segments[0].check("bridge-gate-drive") is None  # reported on the low side only
+    res = bus_result(tmp_path, translator_bus(part="t-fet-translator-lvt", vtol="5 %"))
+    assert res.segments[1].check("bridge-gate-drive").status == "pass"
+    res = bus_result(tmp_path, translator_bus(low="1.1 V"))
+    assert res.segments[1].check("bridge-gate-drive").status == "fail"
+
+
+def test_translator_auto_shares_the_weak_sink(tmp_path):
+    body = translator_bus(vtol="5 %").replace('pullup = "2.2 kΩ"', 'pullup = "auto"')
+    res = bus_result(tmp_path, body)
+    high, low = res.segments
+    # the 2 mA sensor sinks both pull-ups: each side's Rp(min) counts the other's current
+    for seg in (high, low):
+        assert seg.check("sink-current").status in ("pass", "warn")
+    i_low = (1.89 - 0.2 * 1.89) / (low.figures["pullup"].value * 0.99)
+    i_high = (3.465 - 0.2 * 1.89) / (high.figures["pullup"].value * 0.99 + 10.0)
+    # derived from the current budget of the sensor's 2 mA rating
+    assert i_low + i_high <= 2e-3 * 1.001
+
+
+def repeater_bus(far_part="t-target", far_supply="3.3 V"):
+    return f"""
+[[bus]]
+id = "r"
+protocol = "i2c"
+mode = "fast"
+
+[[bus.segment]]
+id = "near"
+supply = "3.3 V"
+supply_tolerance = "5 %"
+devices = [
+  {{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }},
+  {{ ref = "U5", part = "t-repeater", side = "a" }},
+]
+
+[[bus.segment]]
+id = "far"
+supply = "{far_supply}"
+supply_tolerance = "5 %"
+devices = [
+  {{ ref = "U5", part = "t-repeater", side = "b" }},
+  {{ ref = "U6", part = "{far_part}" }},
+]
+"""
+
+
+def test_repeater_offset_against_far_receivers(tmp_path):
+    res = bus_result(tmp_path, repeater_bus())
+    far = res.segments[1]
+    chk = far.check("bridge-offset")
+    # the offset low 0.6 V against VIL 0.3 · 3.135 V of the target
+    assert chk.status == "pass"
+    assert chk.value == pytest.approx(0.6) and chk.limit == pytest.approx(0.3 * 3.135)
+    assert far.check("bridge-offset-facing").status == "pass"
+    # the controller's setup budget carries the repeater's delay twice (there and back)
+    near = res.segments[0]
+    setup = near.check("setup-time")
+    t_low = 2.5e-6 * 1.3 / 1.9
+    assert setup.value == pytest.approx(t_low - (0.9e-6 + 2 * 100e-9)
+                                        - near.figures["rise_time_sda"].value, rel=1e-9)
+    res = bus_result(tmp_path, repeater_bus("t-sensor-1v8", "1.8 V"))
+    chk = res.segments[1].check("bridge-offset")
+    assert chk.status == "fail"   # 0.6 V offset against VIL 0.3 · 1.71 V = 0.513 V
+    assert chk.limit == pytest.approx(0.513)
+
+
+def test_two_offset_sides_facing_lock_the_bus(tmp_path):
+    body = """
+[[bus]]
+id = "r"
+protocol = "i2c"
+
+[[bus.segment]]
+id = "a"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "t-ctrl-3v3", role = "controller" },
+  { ref = "U5", part = "t-repeater", side = "a" },
+]
+
+[[bus.segment]]
+id = "mid"
+supply = "3.3 V"
+devices = [
+  { ref = "U5", part = "t-repeater", side = "b" },
+  { ref = "U7", part = "t-repeater", side = "b" },
+]
+
+[[bus.segment]]
+id = "c"
+supply = "3.3 V"
+devices = [
+  { ref = "U7", part = "t-repeater", side = "a" },
+  { ref = "U2", part = "t-target" },
+]
+"""
+    res = bus_result(tmp_path, body)
+    chk = res.segments[1].check("bridge-offset-facing")
+    assert chk.status == "fail"
+    assert "locks low" in chk.message
+
+
+# --------------------------------------------------------------------------- results and API
+
+
+def test_single_segment_bus_puts_figures_on_the_bus(tmp_path):
+    res = bus_result(tmp_path, one_bus())
+    assert res.segments == []
+    required = ["bus_capacitance", "pullup", "rp_min", "rp_max", "rise_time", "rise_time_10_90",
+                "fall_time", "v_ol", "v_oh", "noise_margin_low", "noise_margin_high",
+                "pullup_power", "scl_frequency_effective", "sda_setup_margin"]
+    for name in required:
+        assert name in res.figures, name
+    ids = {c.id for c in res.checks}
+    assert {"bus-capacitance", "pullup-window", "rise-time", "fall-time", "v-ol", "v-oh",
+            "sink-current", "setup-time", "input-voltage"} <= ids
+    for c in res.checks:
+        assert c.source, c.id
+
+
+def test_check_design_dispatches_and_skips_missing_engines(tmp_path, monkeypatch):
+    body = one_bus() + """
+[[bus]]
+id = "spi"
+protocol = "spi"
+clock = "10 MHz"
+supply = "3.3 V"
+devices = [{ ref = "U1", part = "mcu-3v3", role = "controller" }]
+lines.sclk = { length = "5 cm", capacitance = "1 pF/cm" }
+"""
+    d = design(tmp_path, body)
+    import importlib
+
+    real = importlib.import_module
+
+    def fake(name, *a, **k):
+        if name == "pinlib.buses.pushpull":
+            raise ModuleNotFoundError(name=name)
+        return real(name, *a, **k)
+
+    monkeypatch.setattr(importlib, "import_module", fake)
+    result = check_design(d)
+    assert [b.id for b in result.buses] == ["b", "spi"]
+    spi = result.bus("spi")
+    assert spi.checks == [] and "not available" in spi.notes[0]
+
+
+def test_collect_exposes_the_inputs(tmp_path):
+    d = design(tmp_path, one_bus(extra="30 pF"))
+    lim, segs = opendrain.collect(d.buses[0], d)
+    assert lim.label == "I2C Fast-mode"
+    sda = segs[0].lines["sda"]
+    assert sda.cb == pytest.approx(50e-12)
+    assert sda.cb_parts["extra"] == pytest.approx(30e-12)
