@@ -1,0 +1,248 @@
+"""``pinlib swap DESIGN REF=PART ...``: rerun a design with parts substituted.
+
+The design is evaluated as it is and with the substitutions; the figures are printed
+side by side with the checks whose status changed and the part values behind the
+change (:func:`pinlib.compare.compare`).  A part that cannot serve the position —
+a pin function missing, a drive the position does not allow
+(:func:`pinlib.compare.can_serve`) — is refused with the reason before anything is
+evaluated: exit 2, the design file untouched.  With ``--write`` the design file is
+edited in place after the evaluation succeeds: only the ``part = "..."`` of the
+substituted devices changes; comments and formatting stay.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import re
+import sys
+
+__all__ = ["add_parser", "run", "threshold_type", "parse_assignments"]
+
+EXAMPLES = """\
+examples:
+  pinlib swap workbooks/designs/demo-board.toml U4=io-expander-i2c
+  pinlib swap board.toml U4=eeprom-hicap U7=nor-flash-spi --threshold 2%
+  pinlib swap board.toml U4=eeprom-hicap --library ./parts --write
+  pinlib swap board.toml U4=eeprom-hicap --json > swap.json
+
+Figures marked * moved by more than the threshold (5 % unless --threshold).
+A part that cannot serve the position (a pin function the old part served on that bus
+is missing, or its drive is wrong for the role, e.g. a push-pull SDA, a peripheral's
+CIPO that is not push-pull) is refused with the reason and the file is not touched.
+
+exit status: 0 the swapped design passes or warns, 1 a check fails, 2 a refused
+substitution or a design/library that is not valid.
+"""
+
+_ASSIGN = re.compile(r"^\s*([^=\s]+)\s*=\s*([a-z0-9][a-z0-9-]*)\s*$")
+
+
+def threshold_type(text: str) -> float:
+    """An argparse type for ``--threshold``: ``5%`` or ``"5 %"`` -> 0.05."""
+    from pinlib.compare import parse_change_threshold
+    from pinlib.errors import PinlibError
+
+    try:
+        return parse_change_threshold(text)
+    except PinlibError as err:
+        raise argparse.ArgumentTypeError(err.problem + (f"; {err.hint}" if err.hint else "")
+                                         ) from None
+
+
+def add_parser(sub) -> None:
+    p = sub.add_parser(
+        "swap",
+        help="rerun a design with parts substituted and show what changes",
+        description="Evaluate a design with one or more parts substituted (REF=PART) and "
+                    "show the figures before and after, the checks whose status changed and "
+                    "the part values behind the change. --write edits the design file in "
+                    "place, keeping its comments and formatting.",
+        epilog=EXAMPLES,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    p.add_argument("design", metavar="DESIGN", help="the design file (.toml)")
+    p.add_argument("swaps", metavar="REF=PART", nargs="+",
+                   help="a reference designator and the part id to put there")
+    p.add_argument("--write", action="store_true",
+                   help="edit the design file in place after a successful evaluation")
+    p.add_argument("--json", action="store_true",
+                   help="print before, after and the change list as JSON")
+    p.add_argument("--library", metavar="DIR", action="append", default=[],
+                   help="a team library folder (repeatable; takes precedence over the design's)")
+    p.add_argument("--threshold", metavar="PCT", type=threshold_type, default=None,
+                   help="list figures that move by more than this (default 5%%)")
+    p.set_defaults(run=run)
+
+
+def parse_assignments(items) -> dict[str, str]:
+    """``["U4=eeprom-hicap", ...]`` -> ``{"U4": "eeprom-hicap"}``."""
+    from pinlib.errors import InputError
+
+    out: dict[str, str] = {}
+    for item in items:
+        m = _ASSIGN.match(item)
+        if not m:
+            raise InputError("a substitution is REF=PART", field="REF=PART", value=item,
+                             expected="e.g. U4=eeprom-i2c (a part id: lowercase, digits, -)")
+        ref, part = m.groups()
+        if ref in out and out[ref] != part:
+            raise InputError("one reference substituted twice", field="REF=PART", value=ref,
+                             hint=f"{out[ref]} and {part}")
+        out[ref] = part
+    return out
+
+
+def _refusals(design, swaps: dict[str, str]) -> list[dict]:
+    """Each substitution's reasons for refusal (empty list: all can serve)."""
+    from pinlib.compare import can_serve
+    from pinlib.errors import DesignError
+
+    refused = []
+    refs = sorted({d.ref for b in design.buses for d in b.devices})
+    for ref, part_id in swaps.items():
+        places = [(b, d) for b in design.buses for d in b.devices if d.ref == ref]
+        if not places:
+            raise DesignError("no device with this reference", file=str(design.path),
+                              field="REF=PART", value=ref,
+                              hint="devices: " + ", ".join(refs))
+        new_part = design.library.get(part_id, field="REF=PART")
+        reasons: list[str] = []
+        if new_part.abstract:
+            reasons.append(f"{part_id} is an abstract class, meant to be extended, not placed")
+        elif new_part.category == "cable":
+            reasons.append(f"{part_id} is a cable class; it belongs in cables or a line's "
+                           "sections")
+        else:
+            for bus, dev in places:
+                for reason in can_serve(dev.part, new_part, dev, bus):
+                    if reason not in reasons:
+                        reasons.append(reason)
+        if reasons:
+            refused.append({"ref": ref, "old": places[0][1].part_id, "new": part_id,
+                            "reasons": reasons})
+    return refused
+
+
+def _table(rows) -> list[str]:
+    from pinlib.compare import format_change, format_figure
+
+    out = []
+    name_w = max([len(r.name) for r in rows] + [6]) + 2
+    cells = [(format_figure(r.old, r.unit), format_figure(r.new, r.unit)) for r in rows]
+    old_w = max([len(c[0]) for c in cells] + [6]) + 2
+    new_w = max([len(c[1]) for c in cells] + [5]) + 2
+    out.append(f"  {'figure':<{name_w}}{'before':<{old_w}}{'after':<{new_w}}change")
+    path = None
+    for row, (old, new) in zip(rows, cells):
+        if row.path != path:
+            path = row.path
+            out.append(f"{path}")
+        mark = "*" if row.moved else " "
+        change = format_change(row.change).strip("()") if row.kind in ("moved", "same") else {
+            "added": "new", "removed": "gone", "changed": "differs"}.get(row.kind, "")
+        if row.kind == "same" and row.change == 0:
+            change = ""
+        out.append(f"{mark} {row.name:<{name_w}}{old:<{old_w}}{new:<{new_w}}{change}".rstrip())
+    return out
+
+
+def run(args) -> int:
+    from pinlib.check import check_design
+    from pinlib.compare import (
+        DEFAULT_THRESHOLD,
+        compare,
+        figure_rows,
+        snapshot,
+        swapped_text,
+    )
+    from pinlib.design import load_design
+    from pinlib.errors import WriteError
+    from pinlib.result import CAUTION
+    from pinlib.tomlfile import atomic_write, file_lock
+
+    threshold = DEFAULT_THRESHOLD if args.threshold is None else args.threshold
+    swaps = parse_assignments(args.swaps)
+    design = load_design(args.design, library_folders=args.library)
+
+    refused = _refusals(design, swaps)
+    if refused:
+        for r in refused:
+            print(f"pinlib: error: {r['ref']} = {r['new']} refused: {r['new']} cannot serve "
+                  f"the position of {r['old']}:", file=sys.stderr)
+            for reason in r["reasons"]:
+                print(f"  - {reason}", file=sys.stderr)
+        print(f"pinlib: {args.design} was not changed", file=sys.stderr)
+        if args.json:
+            json.dump({"format": "pinlib.swap/1", "design": design.title,
+                       "path": str(design.path), "refused": refused, "written": False},
+                      sys.stdout, indent=2, ensure_ascii=False)
+            sys.stdout.write("\n")
+        return 2
+
+    before = check_design(design)
+    after_design = design.with_parts(swaps)
+    after = check_design(after_design)
+    old_snap, new_snap = snapshot(design, before), snapshot(after_design, after)
+    changes = compare(old_snap, new_snap, threshold=threshold)
+    rows = figure_rows(old_snap, new_snap, threshold=threshold)
+
+    written = False
+    if args.write:
+        text = swapped_text(design, swaps)
+        with file_lock(design.path):
+            now = design.path.read_text(encoding="utf-8")
+            if now != design.text:
+                raise WriteError("the design file changed while it was being evaluated; "
+                                 "nothing written", file=str(design.path),
+                                 hint="run the swap again")
+            if text != design.text:
+                atomic_write(design.path, text)
+                written = True
+
+    lib = design.library
+    swap_rows = []
+    for ref, part_id in swaps.items():
+        _, dev = design.device(ref)
+        new_file = str(lib.path_of(part_id)) if part_id in lib.files else None
+        swap_rows.append({"ref": ref, "old": dev.part_id, "new": part_id, "file": new_file})
+
+    if args.json:
+        json.dump({"format": "pinlib.swap/1", "design": design.title, "path": str(design.path),
+                   "swaps": swap_rows, "threshold": threshold, "written": written,
+                   "before": before.to_json(), "after": after.to_json(),
+                   "figures": [r.to_json() for r in rows], "changes": changes.to_json()},
+                  sys.stdout, indent=2, ensure_ascii=False)
+        sys.stdout.write("\n")
+        return after.exit_code()
+
+    out = [f"{design.title} ({design.path})", "Substitutions:"]
+    for s in swap_rows:
+        same = " (unchanged)" if s["old"] == s["new"] else ""
+        out.append(f"  {s['ref']}: {s['old']} → {s['new']}{same}"
+                   + (f"  [{s['file']}]" if s["file"] else ""))
+    out.append("")
+    out += _table(rows)
+    out.append("")
+    out.append(f"Status: {before.status} → {after.status}")
+    if changes.status_changes:
+        out.append("Checks whose status changed:")
+        out += ["  " + c.format() for c in changes.status_changes]
+    else:
+        out.append("No check changed status.")
+    if changes.part_changes:
+        out.append("Part values behind the change:")
+        for pc in changes.part_changes:
+            out += ["  " + line for line in pc.lines()]
+    out += [f"Note: {n}" for n in changes.notes]
+    out.append("")
+    if written:
+        out.append(f"Wrote {design.path} (only the part of {', '.join(swaps)} changed).")
+    elif args.write:
+        out.append(f"{design.path} already holds these parts; nothing written.")
+    else:
+        out.append("Design file not changed (add --write to apply the substitution).")
+    out.append("")
+    out.append(CAUTION)
+    sys.stdout.write("\n".join(out) + "\n")
+    return after.exit_code()

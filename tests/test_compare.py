@@ -1,0 +1,618 @@
+"""Snapshots, change lists, pin compatibility and ``pinlib swap``.
+
+Every board and test part here is invented for the test.  The main scenario is a 5 V
+Fast-mode bus loaded close to its rise-time limit; substituting an EEPROM class whose
+pins load the bus with 80 pF instead of 8 pF must flip the rise-time check and the
+change list must name the part value behind it.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import textwrap
+from pathlib import Path
+
+import pytest
+
+from pinlib.check import check_design
+from pinlib.cli import main
+from pinlib.compare import (
+    ChangeList,
+    can_serve,
+    compare,
+    compare_with_snapshot,
+    figure_rows,
+    load_snapshot,
+    parse_change_threshold,
+    save_snapshot,
+    snapshot,
+    snapshot_path,
+    swapped_text,
+    value_label,
+)
+from pinlib.design import load_design
+from pinlib.errors import InputError, UnitError
+
+# ---------------------------------------------------------------- invented test data
+
+HICAP = """\
+format = "pinlib.part/1"
+id = "eeprom-hicap"
+title = "Test EEPROM with heavily loaded bus pins (invented)"
+category = "memory"
+extends = "eeprom-i2c"
+provenance = { basis = "estimate", source = "invented test class" }
+
+[pins.sda]
+c_in = { value = "80 pF", basis = "estimate", source = "test: heavy pin (invented)" }
+
+[pins.scl]
+c_in = { value = "80 pF", basis = "estimate", source = "test: heavy pin (invented)" }
+"""
+
+PUSH_PULL_SDA = """\
+format = "pinlib.part/1"
+id = "eeprom-pushpull"
+title = "Test part with a push-pull SDA (invented)"
+category = "memory"
+extends = "eeprom-i2c"
+
+[pins.sda]
+drive = "push-pull"
+"""
+
+OPEN_DRAIN_CIPO = """\
+format = "pinlib.part/1"
+id = "flash-od-cipo"
+title = "Test flash with an open-drain CIPO (invented)"
+category = "memory"
+extends = "nor-flash-spi"
+
+[pins.cipo]
+drive = "open-drain"
+"""
+
+PUSH_PULL_SCL_MCU = """\
+format = "pinlib.part/1"
+id = "mcu-pp-scl"
+title = "Test controller with a push-pull SCL (invented)"
+category = "controller"
+extends = "mcu-5v"
+
+[pins.scl]
+drive = "push-pull"
+"""
+
+STRETCH = """\
+format = "pinlib.part/1"
+id = "eeprom-stretch"
+title = "Test target that stretches the clock (invented)"
+category = "memory"
+extends = "eeprom-i2c"
+
+[pins.scl]
+drive = "open-drain"
+"""
+
+PUSH_PULL_SCL_TARGET = STRETCH.replace("eeprom-stretch", "eeprom-pp-scl").replace(
+    'drive = "open-drain"', 'drive = "push-pull"')
+
+# The bus sits near its rise-time limit: 5 V rail, Fast-mode, 1.8 kΩ, 140 pF of extra load.
+BOARD = """\
+format = "pinlib.design/1"
+title = "Rise-time test board (invented scenario)"
+library = ["team"]
+# A comment at the top that must survive a --write.
+
+[[bus]]
+id = "sensors"   # the sensor bus
+protocol = "i2c"
+mode = "fast"
+supply = "5 V"
+pullup = "1.8 kΩ"
+pullup_tolerance = "1 %"
+trace = { length = "10 cm", capacitance = "0.8 pF/cm" }
+extra_capacitance = "140 pF"    # connectors and a probe point
+devices = [
+  { ref = "U1", part = "mcu-5v", role = "controller" },
+  # the memory, the part under substitution:
+  { ref = "U4", part = "eeprom-i2c" },   # keep this comment
+]
+"""
+
+SPI_BOARD = """\
+format = "pinlib.design/1"
+title = "SPI test board (invented scenario)"
+library = ["team"]
+
+[board.geometry.outer]
+kind = "microstrip"
+width = "0.2 mm"
+height = "0.18 mm"
+er = 4.2
+
+[[bus]]
+id = "sensors"
+protocol = "i2c"
+mode = "fast"
+supply = "3.3 V"
+pullup = "auto"
+trace = { length = "5 cm", capacitance = "0.8 pF/cm" }
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U4", part = "eeprom-i2c" },
+]
+
+[[bus]]
+id = "flash"
+protocol = "spi"
+spi_mode = 0
+clock = "10 MHz"
+supply = "3.3 V"
+devices = [{ ref = "U1", part = "mcu-3v3", role = "controller" }, { ref = "U7", part = "nor-flash-spi" }]
+lines.sclk = { length = "4 cm", geometry = "outer", series_resistor = "auto" }
+lines.copi = { length = "4 cm", geometry = "outer" }
+lines.cipo = { length = "4 cm", geometry = "outer" }
+lines.cs = { length = "4 cm", geometry = "outer" }
+"""
+
+# A bus split by a repeater: the devices sit in [[bus.segment]] tables.
+SEGMENT_BOARD = """\
+format = "pinlib.design/1"
+title = "Segmented test board (invented scenario)"
+library = ["team"]
+
+[[bus]]
+id = "split"
+protocol = "i2c"
+mode = "fast"
+pullup = "auto"
+
+# the controller side
+[[bus.segment]]
+id = "near"
+supply = "3.3 V"
+trace = { length = "5 cm", capacitance = "0.8 pF/cm" }
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "i2c-repeater", side = "a" },
+]
+
+# the far side, behind the repeater
+[[bus.segment]]
+id = "far"
+supply = "3.3 V"
+trace = { length = "20 cm", capacitance = "0.8 pF/cm" }   # a long run
+devices = [
+  { ref = "U2", part = "i2c-repeater", side = "b" },
+  { ref = "U4", part = "eeprom-i2c" },    # far memory
+]
+"""
+
+
+def _write(folder: Path, name: str, text: str) -> Path:
+    folder.mkdir(parents=True, exist_ok=True)
+    path = folder / name
+    path.write_text(textwrap.dedent(text), encoding="utf-8")
+    return path
+
+
+@pytest.fixture
+def board(tmp_path) -> Path:
+    team = tmp_path / "team"
+    _write(team, "eeprom-hicap.toml", HICAP)
+    _write(team, "eeprom-pushpull.toml", PUSH_PULL_SDA)
+    _write(team, "flash-od-cipo.toml", OPEN_DRAIN_CIPO)
+    _write(team, "mcu-pp-scl.toml", PUSH_PULL_SCL_MCU)
+    _write(team, "eeprom-stretch.toml", STRETCH)
+    _write(team, "eeprom-pp-scl.toml", PUSH_PULL_SCL_TARGET)
+    _write(tmp_path, "spi-board.toml", SPI_BOARD)
+    _write(tmp_path, "segment-board.toml", SEGMENT_BOARD)
+    return _write(tmp_path, "rise-board.toml", BOARD)
+
+
+# ---------------------------------------------------------------- the main scenario
+
+
+def test_heavier_pin_flips_rise_time_and_names_the_part_value(board):
+    design = load_design(board)
+    swapped = design.with_parts({"U4": "eeprom-hicap"})
+    before, after = check_design(design), check_design(swapped)
+    old, new = snapshot(design, before), snapshot(swapped, after)
+    changes = compare(old, new)
+
+    flips = {(c.path, c.check, c.subject): (c.old, c.new) for c in changes.status_changes}
+    assert flips[("sensors", "rise-time", "SDA")] == ("pass", "fail")
+    assert flips[("sensors", "rise-time", "SCL")] == ("pass", "fail")
+    rise = next(c for c in changes.status_changes if c.check == "rise-time")
+    # published: I2C-bus specification UM10204 rev. 6, table 10, Fast-mode tr max 300 ns
+    assert rise.new_limit == pytest.approx(300e-9, rel=1e-9)
+    assert rise.new_value > 300e-9 > rise.old_value
+
+    # The pin capacitance behind it: SDA load grows by 80 pF - 8 pF.
+    figs = {(f.path, f.name): f for f in changes.figure_changes}
+    cb = figs[("sensors", "bus_capacitance_sda")]
+    # derived from the part files: c_in 8 pF (eeprom-i2c) -> 80 pF (eeprom-hicap)
+    assert cb.new - cb.old == pytest.approx(72e-12, rel=1e-9)
+    # derived from UM10204 rev. 6 §7.1 eq. 1: tr(30-70 %) = ln(7/3)·Rp·Cb, with Rp at
+    # the top of its 1 % tolerance
+    tr = figs[("sensors", "rise_time_sda")]
+    for t, c in ((tr.old, cb.old), (tr.new, cb.new)):
+        assert t == pytest.approx(math.log(7 / 3) * 1800 * 1.01 * c, rel=1e-6)
+
+    (u4,) = [p for p in changes.part_changes if p.ref == "U4"]
+    assert (u4.old_part, u4.new_part) == ("eeprom-i2c", "eeprom-hicap")
+    assert u4.new_file == "team/eeprom-hicap.toml"
+    keys = {v.key for v in u4.values}
+    assert keys == {"pins.sda.c_in", "pins.scl.c_in"}  # nothing else differs
+    lines = [ln.strip() for ln in u4.lines()]
+    assert "U4 SDA c_in 8 pF → 80 pF, source: test: heavy pin (invented) [estimate]" in lines
+    text = changes.format_text()
+    assert "rise-time SDA: pass → fail" in text
+    assert "U4 SDA c_in 8 pF → 80 pF" in text
+    assert not changes.empty
+    assert [p.ref for p in changes.part_changes] == ["U4"]  # U1 unchanged: not listed
+
+
+def test_change_list_json_round_trips(board):
+    design = load_design(board)
+    swapped = design.with_parts({"U4": "eeprom-hicap"})
+    changes = compare(snapshot(design, check_design(design)),
+                      snapshot(swapped, check_design(swapped)))
+    data = json.loads(json.dumps(changes.to_json()))
+    assert data["format"] == "pinlib.changes/1"
+    assert data["status"] == {"old": "pass", "new": "fail"}
+    assert data["empty"] is False
+    assert {c["check"] for c in data["status_changes"]} >= {"rise-time"}
+    (pc,) = data["part_changes"]
+    assert pc["values"][0]["new"]["source"] == "test: heavy pin (invented)"
+    assert pc["values"][0]["new"]["value"] == pytest.approx(80e-12)
+
+
+# ---------------------------------------------------------------- snapshots
+
+
+def test_snapshot_path_beside_the_design():
+    assert snapshot_path(Path("boards/demo-board.toml")) == Path("boards/demo-board.result.json")
+    assert snapshot_path("x/board") == Path("x/board.result.json")
+
+
+def test_snapshot_explains_itself_and_round_trips(board):
+    design = load_design(board)
+    result = check_design(design)
+    path = save_snapshot(design, result)
+    assert path == board.with_name("rise-board.result.json")
+    loaded = load_snapshot(path)
+    assert loaded["format"] == "pinlib.result/1"
+    assert loaded["buses"] == json.loads(json.dumps(result.to_json()))["buses"]
+    assert loaded["created"]
+    u4 = loaded["parts"]["U4"]
+    assert u4["part"] == "eeprom-i2c"
+    assert u4["file"] == "builtin:memory/eeprom-i2c.toml"
+    assert u4["chain"] == ["eeprom-i2c", "i2c-peripheral"]
+    c_in = u4["values"]["pins.sda.c_in"]
+    assert c_in["value"] == pytest.approx(8e-12) and c_in["unit"] == "F"
+    assert c_in["origin"] == "eeprom-i2c" and c_in["text"] == "8 pF"
+    v_ih = u4["values"]["pins.sda.v_ih"]  # inherited from the abstract base
+    assert v_ih["origin"] == "i2c-peripheral" and v_ih["scale"] == pytest.approx(0.7)
+    # derived: 0.7 VDD at the 5 V rail
+    assert v_ih["value"] == pytest.approx(3.5, rel=1e-12) and v_ih["vdd"] == 5.0
+    assert "table 9" in v_ih["source"]
+    assert loaded["library"]["folders"] == ["builtin", "team"]
+    # the same design against its own snapshot: nothing changed
+    again = compare_with_snapshot(design, check_design(design))
+    assert isinstance(again, ChangeList) and again.empty
+    assert "no check changed status" in again.format_text()
+
+
+def test_no_snapshot_gives_none(board):
+    design = load_design(board)
+    assert compare_with_snapshot(design, check_design(design)) is None
+
+
+def test_broken_snapshot_is_an_input_error(board):
+    design = load_design(board)
+    snapshot_path(board).write_text("{not json", encoding="utf-8")
+    with pytest.raises(InputError, match="not valid JSON"):
+        compare_with_snapshot(design, check_design(design))
+    snapshot_path(board).write_text('{"format": "other"}', encoding="utf-8")
+    with pytest.raises(InputError, match="not a pinlib result snapshot"):
+        load_snapshot(snapshot_path(board))
+
+
+def test_library_edit_with_same_part_id_lists_the_value(board, tmp_path):
+    """The snapshot catches a part file edited after it was saved (same part id)."""
+    team = tmp_path / "team"
+    _write(team, "eeprom-hicap.toml", HICAP)
+    design = load_design(board, swaps={"U4": "eeprom-hicap"})
+    save_snapshot(design, check_design(design))
+    _write(team, "eeprom-hicap.toml", HICAP.replace('"80 pF"', '"60 pF"', 1))
+    design = load_design(board, swaps={"U4": "eeprom-hicap"})
+    changes = compare_with_snapshot(design, check_design(design))
+    (u4,) = changes.part_changes
+    assert u4.old_part == u4.new_part == "eeprom-hicap"
+    assert [v.key for v in u4.values] == ["pins.sda.c_in"]
+    assert "U4 SDA c_in 80 pF → 60 pF" in changes.format_text()
+
+
+# ---------------------------------------------------------------- thresholds
+
+
+def _result(figures: dict, status="pass", checks=()):
+    return {"format": "pinlib.result/1", "design": "t", "status": status,
+            "buses": [{"id": "b", "protocol": "i2c", "status": status,
+                       "figures": {k: {"value": v, "unit": u} for k, (v, u) in figures.items()},
+                       "checks": list(checks), "lines": []}]}
+
+
+def test_threshold_is_relative_and_strict():
+    old = _result({"a": (100.0, "Ω"), "b": (100.0, "Ω"), "c": (0.0, "V"), "d": (True, ""),
+                   "e": ("lumped", ""), "gone": (1.0, "s")})
+    new = _result({"a": (104.0, "Ω"), "b": (106.0, "Ω"), "c": (1e-3, "V"), "d": (False, ""),
+                   "e": ("lumped", ""), "new": (2.0, "s")})
+    names = {f.name: f for f in compare(old, new).figure_changes}  # default 5 %
+    assert set(names) == {"b", "c", "d", "gone", "new"}
+    assert names["b"].change == pytest.approx(0.06)
+    assert names["c"].change == math.inf and names["c"].to_json()["change"] is None
+    assert names["gone"].kind == "removed" and names["new"].kind == "added"
+    assert names["d"].kind == "changed"
+    assert {f.name for f in compare(old, new, threshold=0.03).figure_changes} >= {"a", "b"}
+    assert "b" not in {f.name for f in compare(old, new, threshold=0.10).figure_changes}
+    # exactly at the threshold is not "more than" it
+    assert "a" not in {f.name for f in compare(old, new, threshold=0.04).figure_changes}
+    assert compare(old, old, threshold=0.0).empty
+    rows = {r.name: r for r in figure_rows(old, new)}
+    assert rows["a"].kind == "same" and not rows["a"].moved
+    with pytest.raises(InputError, match="negative"):
+        compare(old, new, threshold=-0.1)
+
+
+def test_status_changes_include_new_and_removed_checks():
+    chk = {"id": "rise-time", "status": "pass", "value": 1.0, "limit": 2.0, "unit": "s",
+           "margin": 0.5, "source": "src", "message": "", "subject": "SDA"}
+    old = _result({}, checks=[chk, dict(chk, id="gone")])
+    new = _result({}, status="fail", checks=[dict(chk, status="fail", value=3.0),
+                                             dict(chk, id="fresh")])
+    by_id = {c.check: c for c in compare(old, new).status_changes}
+    assert (by_id["rise-time"].old, by_id["rise-time"].new) == ("pass", "fail")
+    assert (by_id["gone"].old, by_id["gone"].new) == ("pass", None)
+    assert (by_id["fresh"].old, by_id["fresh"].new) == (None, "pass")
+    assert "b rise-time SDA: pass → fail (1 s → 3 s, limit 2 s); source: src" in \
+        by_id["rise-time"].format()
+
+
+def test_check_whose_worst_case_moves_to_another_device_is_the_same_check():
+    chk = {"id": "v-oh", "status": "pass", "value": 3.0, "limit": 2.0, "unit": "V",
+           "margin": 0.5, "source": "src", "message": "", "subject": "SDA U1"}
+    old = _result({}, checks=[chk])
+    moved = _result({}, checks=[dict(chk, subject="SDA U4")])
+    assert compare(old, moved).empty  # same status: nothing to list
+    worse = _result({}, status="warn", checks=[dict(chk, subject="SDA U4", status="warn")])
+    (c,) = compare(old, worse).status_changes
+    assert (c.subject, c.old_subject, c.old, c.new) == ("SDA U4", "SDA U1", "pass", "warn")
+    assert c.format().startswith("b v-oh SDA U4 (was SDA U1): pass → warn")
+
+
+def test_parse_change_threshold():
+    assert parse_change_threshold("5%") == pytest.approx(0.05)
+    assert parse_change_threshold("2.5 %") == pytest.approx(0.025)
+    with pytest.raises(UnitError):
+        parse_change_threshold("5")
+
+
+def test_value_labels():
+    assert value_label("pins.sda.c_in") == "SDA c_in"
+    assert value_label("sides.b.pins.scl.v_il") == "side b SCL v_il"
+    assert value_label("timing.t_valid") == "t_valid"
+    assert value_label("pins.sclk.edges[0].rise") == "SCLK edges[0] rise"
+
+
+# ---------------------------------------------------------------- compatibility
+
+
+def test_can_serve_rules(board):
+    spi = load_design(board.with_name("spi-board.toml"))
+    lib = spi.library
+    i2c_bus, flash_bus = spi.bus("sensors"), spi.bus("flash")
+    u4 = next(d for d in i2c_bus.devices if d.ref == "U4")
+    u7 = next(d for d in flash_bus.devices if d.ref == "U7")
+    u1_spi = next(d for d in flash_bus.devices if d.ref == "U1")
+
+    assert can_serve(u4.part, lib.get("eeprom-hicap"), u4, i2c_bus) == []
+    assert can_serve(u4.part, lib.get("io-expander-i2c"), u4, i2c_bus) == []
+    (why,) = can_serve(u4.part, lib.get("eeprom-pushpull"), u4, i2c_bus)
+    assert "push-pull" in why and "open-drain" in why
+    missing = can_serve(u4.part, lib.get("nor-flash-spi"), u4, i2c_bus)
+    assert len(missing) == 2 and "no i2c-sda pin" in missing[0]
+
+    assert can_serve(u7.part, lib.get("adc-spi"), u7, flash_bus) == []
+    (why,) = can_serve(u7.part, lib.get("flash-od-cipo"), u7, flash_bus)
+    assert "open-drain" in why and "push-pull" in why
+    (why,) = can_serve(u7.part, lib.get("dac-spi"), u7, flash_bus)  # write-only: no CIPO
+    assert "no spi-cipo pin" in why
+    # a peripheral class in a controller's place: SCLK, COPI, CS are inputs there
+    why = can_serve(u1_spi.part, lib.get("nor-flash-spi"), u1_spi, flash_bus)
+    assert any("spi-sclk" in w and "push-pull" in w for w in why)
+    assert can_serve(u1_spi.part, lib.get("fpga-io-3v3"), u1_spi, flash_bus) == []
+    # a bridging part only for a bridging part
+    assert "bridging" in can_serve(u4.part, lib.get("i2c-repeater"), u4, i2c_bus)[0]
+
+
+GPIO_BOARD = """\
+format = "pinlib.design/1"
+title = "Interrupt line test board (invented scenario)"
+
+[[bus]]
+id = "irq"
+protocol = "gpio"
+supply = "3.3 V"
+lines.int = { length = "5 cm", capacitance = "0.8 pF/cm" }
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U4", part = "io-expander-i2c" },
+  { ref = "J1", part = "board-to-board-connector", pin = "gpio" },
+]
+"""
+
+
+@pytest.mark.parametrize("new, reason", [
+    ("rtc-i2c", None),            # an open-drain pin named like the line
+    ("adc-i2c", None),            # its only gpio pin ("rdy"), open-drain
+    ("display-controller-spi", "a GPIO position keeps its drive"),  # "dc" is an input
+    ("eeprom-i2c", "has no pin for line int"),
+])
+def test_can_serve_gpio(tmp_path, new, reason):
+    design = load_design(_write(tmp_path, "gpio.toml", GPIO_BOARD))
+    bus = design.bus("irq")
+    u4 = next(d for d in bus.devices if d.ref == "U4")
+    why = can_serve(u4.part, design.library.get(new), u4, bus)
+    if reason is None:
+        assert why == []
+    else:
+        assert len(why) == 1 and reason in why[0]
+
+
+def test_can_serve_bridges(board):
+    design = load_design(board.with_name("segment-board.toml"))
+    bus = design.bus("split")
+    lib = design.library
+    for dev in (d for d in bus.devices if d.ref == "U2"):
+        # a repeater for a pass-transistor translator: both serve an open-drain bus
+        assert can_serve(dev.part, lib.get("level-translator-mosfet"), dev, bus) == []
+        (why,) = can_serve(dev.part, lib.get("eeprom-i2c"), dev, bus)
+        assert "bridging part" in why
+
+
+def test_push_pull_scl_only_without_other_scl_drivers(board):
+    design = load_design(board)
+    bus = design.bus("sensors")
+    u1 = next(d for d in bus.devices if d.ref == "U1")
+    lib = design.library
+    # eeprom-i2c's SCL is an input: nothing else pulls SCL low, push-pull is allowed
+    assert can_serve(u1.part, lib.get("mcu-pp-scl"), u1, bus) == []
+    # with a target that can stretch the clock (open-drain SCL) it is refused
+    bus = load_design(board, swaps={"U4": "eeprom-stretch"}).bus("sensors")
+    u1 = next(d for d in bus.devices if d.ref == "U1")
+    (why,) = can_serve(u1.part, lib.get("mcu-pp-scl"), u1, bus)
+    assert "U4" in why and "SCL must be open-drain" in why
+    # a target's SCL must not be push-pull
+    u4 = next(d for d in bus.devices if d.ref == "U4")
+    (why,) = can_serve(u4.part, lib.get("eeprom-pp-scl"), u4, bus)
+    assert "push-pull" in why and "fight the controller" in why
+
+
+# ---------------------------------------------------------------- pinlib swap
+
+
+def test_swap_prints_side_by_side_and_exits_like_check(board, capsys):
+    original = board.read_bytes()
+    code = main(["swap", str(board), "U4=eeprom-hicap"])
+    out = capsys.readouterr().out
+    assert code == 1  # the swapped design fails
+    assert "before" in out and "after" in out
+    assert "* rise_time_sda" in out
+    assert "rise-time SDA: pass → fail" in out
+    assert "U4 SDA c_in 8 pF → 80 pF" in out
+    assert board.read_bytes() == original  # no --write: untouched
+    # a substitution that keeps the bus passing exits 0
+    assert main(["swap", str(board), "U4=eeprom-i2c"]) == 0
+    assert "No check changed status." in capsys.readouterr().out
+
+
+def test_swap_json(board, capsys):
+    code = main(["swap", str(board), "U4=eeprom-hicap", "--json", "--threshold", "50%"])
+    data = json.loads(capsys.readouterr().out)
+    assert code == 1
+    assert data["format"] == "pinlib.swap/1" and data["written"] is False
+    assert data["before"]["status"] == "pass" and data["after"]["status"] == "fail"
+    assert data["threshold"] == pytest.approx(0.5)
+    # at 50 % the +43 % bus capacitance is not listed; the +84 % fall time is
+    moved = {f["name"] for f in data["changes"]["figure_changes"]}
+    assert "bus_capacitance_sda" not in moved
+    assert data["swaps"] == [{"ref": "U4", "old": "eeprom-i2c", "new": "eeprom-hicap",
+                              "file": str(board.parent / "team" / "eeprom-hicap.toml")}]
+
+
+def test_swap_write_changes_only_the_part(board, capsys):
+    old = board.read_text(encoding="utf-8")
+    code = main(["swap", str(board), "U4=eeprom-hicap", "--write"])
+    assert code == 1
+    assert "Wrote" in capsys.readouterr().out
+    new = board.read_text(encoding="utf-8")
+    line_old = '  { ref = "U4", part = "eeprom-i2c" },   # keep this comment\n'
+    line_new = '  { ref = "U4", part = "eeprom-hicap" },   # keep this comment\n'
+    assert line_old in old
+    assert new == old.replace(line_old, line_new)  # every other byte as it was
+    assert load_design(board).device("U4")[1].part_id == "eeprom-hicap"
+
+
+def test_swap_write_in_segments_and_on_every_bus(board, capsys):
+    seg = board.with_name("segment-board.toml")
+    old = seg.read_text(encoding="utf-8")
+    assert main(["swap", str(seg), "U4=eeprom-hicap", "--write"]) in (0, 1)
+    new = seg.read_text(encoding="utf-8")
+    assert new == old.replace('{ ref = "U4", part = "eeprom-i2c" },    # far memory',
+                              '{ ref = "U4", part = "eeprom-hicap" },    # far memory')
+    # a controller sitting on two buses is changed in both places
+    spi = board.with_name("spi-board.toml")
+    old = spi.read_text(encoding="utf-8")
+    assert main(["swap", str(spi), "U1=fpga-io-3v3", "--write"]) in (0, 1)
+    new = spi.read_text(encoding="utf-8")
+    assert new == old.replace('{ ref = "U1", part = "mcu-3v3", role = "controller" }',
+                              '{ ref = "U1", part = "fpga-io-3v3", role = "controller" }')
+    assert old.count('part = "mcu-3v3"') == 2
+    capsys.readouterr()
+
+
+def test_swapped_text_keeps_literal_strings(board):
+    board.write_text(BOARD.replace('part = "eeprom-i2c"', "part = 'eeprom-i2c'"),
+                     encoding="utf-8")
+    text = swapped_text(load_design(board), {"U4": "eeprom-hicap"})
+    assert "part = 'eeprom-hicap'" in text
+
+
+@pytest.mark.parametrize("swap, reason", [
+    ("U4=eeprom-pushpull", "push-pull"),
+    ("U4=nor-flash-spi", "no i2c-sda pin"),
+    ("U4=i2c-peripheral", "abstract"),
+])
+def test_refused_swap_leaves_the_file_untouched(board, capsys, swap, reason):
+    original = board.read_bytes()
+    code = main(["swap", str(board), swap, "--write"])
+    err = capsys.readouterr().err
+    assert code == 2
+    assert "refused" in err and reason in err
+    assert board.read_bytes() == original
+    assert not snapshot_path(board).exists()
+
+
+@pytest.mark.parametrize("args, message", [
+    (["U9=eeprom-hicap"], "no device with this reference"),
+    (["U4=eeprom-nope"], "unknown part"),
+    (["U4"], "REF=PART"),
+])
+def test_bad_swap_arguments_exit_2(board, capsys, args, message):
+    original = board.read_bytes()
+    assert main(["swap", str(board), *args, "--write"]) == 2
+    assert message in capsys.readouterr().err
+    assert board.read_bytes() == original
+
+
+def test_refused_swap_json(board, capsys):
+    spi = board.with_name("spi-board.toml")
+    original = spi.read_bytes()
+    assert main(["swap", str(spi), "U7=flash-od-cipo", "--json", "--write"]) == 2
+    data = json.loads(capsys.readouterr().out)
+    assert data["written"] is False
+    (r,) = data["refused"]
+    assert r["ref"] == "U7" and "open-drain" in r["reasons"][0]
+    assert spi.read_bytes() == original
+
+
+def test_swap_help_has_an_example(capsys):
+    with pytest.raises(SystemExit) as exc:
+        main(["swap", "--help"])
+    assert exc.value.code == 0
+    out = capsys.readouterr().out
+    assert "examples:" in out and "pinlib swap" in out and "--write" in out
