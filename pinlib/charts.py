@@ -1,0 +1,805 @@
+"""Chart specifications (altair / Vega-Lite) of what the engines returned.
+
+Presentation only: every number drawn here was computed by an engine and is passed in
+as SI floats or numpy arrays (s, F, Ω, V).  This module picks a display scale for each
+axis (pF, kΩ, ns...) and lays the figures out; it computes no engineering figure.
+
+altair and vl_convert are imported inside the functions that need them, so that
+importing this module (or :mod:`pinlib.check`, :mod:`pinlib.cli`) stays light.
+
+Every chart carries a legend; every axis title names the quantity and its prefixed
+unit, e.g. ``"Bus capacitance Cb (pF)"``, with the values scaled to that unit.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Mapping, Sequence
+from typing import TYPE_CHECKING
+
+import numpy as np
+
+from pinlib.errors import InputError
+from pinlib.quantity import format_si
+
+if TYPE_CHECKING:  # pragma: no cover - typing only
+    import altair as alt
+
+__all__ = [
+    "INK",
+    "ORANGE",
+    "SKY_BLUE",
+    "BLUISH_GREEN",
+    "YELLOW",
+    "BLUE",
+    "VERMILLION",
+    "REDDISH_PURPLE",
+    "PASS",
+    "WARN",
+    "FAIL",
+    "REGION",
+    "UNDEFINED",
+    "LIMIT",
+    "OPERATING",
+    "SERIES",
+    "STATUS_COLOURS",
+    "display_scale",
+    "pullup_window",
+    "edge_vs_load",
+    "waveforms",
+    "timing_budget",
+    "histogram",
+    "to_svg",
+]
+
+# --------------------------------------------------------------------------- palette
+# The eight colours of the Okabe–Ito palette (M. Okabe and K. Ito, "Color Universal
+# Design (CUD): how to make figures and presentations that are friendly to colorblind
+# people", 2002/2008; the same RGB values reprinted in B. Wong, "Points of view: Color
+# blindness", Nature Methods 8, 441 (2011)).  They stay distinct under protanopia,
+# deuteranopia and tritanopia.  Yellow is kept out of the line colours (weak on white).
+INK = "#000000"  # black
+ORANGE = "#E69F00"
+SKY_BLUE = "#56B4E9"
+BLUISH_GREEN = "#009E73"
+YELLOW = "#F0E442"
+BLUE = "#0072B2"
+VERMILLION = "#D55E00"
+REDDISH_PURPLE = "#CC79A7"
+
+# Roles, each a colour of the palette above.  A chart never gives two roles one colour.
+PASS = BLUISH_GREEN
+WARN = ORANGE
+FAIL = VERMILLION
+REGION = SKY_BLUE  # an allowed region (shaded, translucent)
+UNDEFINED = ORANGE  # the band between VIL and VIH (shaded, translucent)
+LIMIT = REDDISH_PURPLE  # a limit or threshold line
+OPERATING = INK  # the chosen operating point
+# Curves (drivers, edges, traces, budget components), in this order; a chart skips the
+# colours its fixed roles already use.
+SERIES = (BLUE, VERMILLION, BLUISH_GREEN, REDDISH_PURPLE, ORANGE, SKY_BLUE, INK)
+STATUS_COLOURS = {"pass": PASS, "warn": WARN, "fail": FAIL}
+
+_WIDTH = 440
+_HEIGHT = 280
+_REGION_OPACITY = 0.30
+_BAND_OPACITY = 0.25
+
+# Engineering prefixes for axis units (exponent -> prefix); micro as µ, like format_si.
+_PREFIXES = {12: "T", 9: "G", 6: "M", 3: "k", 0: "", -3: "m", -6: "µ", -9: "n", -12: "p",
+             -15: "f"}
+
+
+# --------------------------------------------------------------------------- helpers
+def _alt():
+    import altair as alt
+
+    return alt
+
+
+def _array(x, field: str, *, ndim: int | tuple[int, ...] = 1) -> np.ndarray:
+    """``x`` as a float array of the allowed dimension(s), or an InputError naming it."""
+    try:
+        a = np.asarray(x, dtype=float)
+    except (TypeError, ValueError):
+        raise InputError("not a number or an array of numbers", field=field,
+                         value=_short(x), expected="floats in SI units") from None
+    dims = (ndim,) if isinstance(ndim, int) else ndim
+    if a.ndim not in dims:
+        raise InputError(f"array with {a.ndim} dimension(s)", field=field,
+                         value=_short(x),
+                         expected=" or ".join(f"{d}-D" for d in dims) + " array")
+    return a
+
+
+def _scalar(x, field: str, *, positive: bool = False) -> float:
+    try:
+        v = float(x)
+    except (TypeError, ValueError):
+        raise InputError("not a number", field=field, value=_short(x),
+                         expected="a float in SI units") from None
+    if not math.isfinite(v) or (positive and v <= 0.0):
+        raise InputError("cannot be drawn", field=field, value=v,
+                         expected="a finite positive value" if positive else "a finite value")
+    return v
+
+
+def _short(x) -> str:
+    text = repr(x)
+    return text if len(text) <= 60 else text[:57] + "..."
+
+
+def _num(x: float) -> float:
+    """A display value for the JSON spec: 12 significant digits (stable, compact)."""
+    return float(f"{float(x):.12g}")
+
+
+def display_scale(values, unit: str, *, log: bool = False) -> tuple[float, str]:
+    """Display factor and prefixed unit for an axis showing ``values``.
+
+    Parameters
+    ----------
+    values : array_like
+        The values the axis shows. [unit]
+    unit : str
+        Their SI unit (``"F"``, ``"Ω"``, ``"s"``, ``"V"``); ``""`` for a pure number,
+        ``"%"`` for a fraction shown in percent. [1]
+    log : bool, optional
+        The axis is logarithmic: the prefix is chosen for the geometric middle of the
+        range rather than its largest magnitude. [1]
+
+    Returns
+    -------
+    factor : float
+        Multiply an SI value by this to get the displayed number. [1]
+    shown_unit : str
+        The unit with its prefix, e.g. ``"pF"``. [1]
+
+    Examples
+    --------
+    >>> display_scale([10e-12, 400e-12], "F")
+    (1000000000000.0, 'pF')
+    >>> display_scale([0.0, 3.3], "V")
+    (1.0, 'V')
+    """
+    if unit == "%":
+        return 100.0, "%"
+    v = np.abs(np.asarray(values, dtype=float).ravel())
+    v = v[np.isfinite(v) & (v > 0.0)]
+    if not unit or v.size == 0:
+        return 1.0, unit
+    ref = math.sqrt(float(v.min()) * float(v.max())) if log else float(v.max())
+    exp = int(np.clip(math.floor(math.log10(ref) / 3.0) * 3, -15, 12))
+    return 10.0 ** (-exp), _PREFIXES[exp] + unit
+
+
+def _title(label: str, shown_unit: str) -> str:
+    return f"{label} ({shown_unit})" if shown_unit else label
+
+
+def _colours(labels: Sequence[str], taken: Sequence[str]) -> list[str]:
+    """Colours for curve labels, from SERIES without the colours of fixed roles."""
+    free = [c for c in SERIES if c not in taken] or list(SERIES)
+    return [free[i % len(free)] for i in range(len(labels))]
+
+
+def _bar_colours(labels: Sequence[str], taken: Sequence[str]) -> list[str]:
+    """Fill colours for stacked bars: yellow is fine as a fill, so it joins the series."""
+    free = [c for c in (*SERIES, YELLOW) if c not in taken]
+    return [free[i % len(free)] for i in range(len(labels))]
+
+
+def _scale_pair(domain: list[str], colours: list[str]):
+    alt = _alt()
+    return alt.Scale(domain=list(domain), range=list(colours))
+
+
+def _legend(title: str | None, orient: str = "right"):
+    alt = _alt()
+    return alt.Legend(title=title, orient=orient, labelLimit=260, symbolOpacity=0.9)
+
+
+def _axis(title: str):
+    alt = _alt()
+    # "~r": decimal notation, trailing zeros off (no "1.4e+2", no thousands commas);
+    # Vega sets the precision from the tick step.
+    return alt.Axis(title=title, format="~r")
+
+
+def _q(field: str, title: str, *, log: bool = False, channel: str = "x"):
+    alt = _alt()
+    scale = alt.Scale(type="log") if log else alt.Undefined
+    cls = alt.X if channel == "x" else alt.Y
+    return cls(f"{field}:Q", scale=scale, axis=_axis(title))
+
+
+def _titled(chart, title: str | None, subtitle: str | None, width: int, height: int):
+    alt = _alt()
+    props = {"width": width, "height": height}
+    if title:
+        props["title"] = (alt.TitleParams(title, subtitle=subtitle, anchor="start")
+                          if subtitle else alt.TitleParams(title, anchor="start"))
+    return chart.properties(**props)
+
+
+def _unique(labels) -> list[str]:
+    seen: dict[str, None] = {}
+    for s in labels:
+        seen.setdefault(str(s), None)
+    return list(seen)
+
+
+def _keep(*arrays: np.ndarray, positive: Sequence[bool]) -> np.ndarray:
+    """Mask of the points that can be drawn: finite, and positive on log axes."""
+    ok = np.ones(arrays[0].shape, dtype=bool)
+    for a, pos in zip(arrays, positive):
+        ok &= np.isfinite(a)
+        if pos:
+            ok &= a > 0.0
+    return ok
+
+
+# --------------------------------------------------------------------------- charts
+def pullup_window(cb, rp_min, rp_max, *, chosen_cb, chosen_rp,
+                  title: str | None = "Pull-up window", subtitle: str | None = None,
+                  rp_min_label: str = "Rp min (VOL at IOL)",
+                  rp_max_label: str = "Rp max (rise time)",
+                  region_label: str = "allowed Rp",
+                  chosen_label: str | None = None,
+                  width: int = _WIDTH, height: int = _HEIGHT) -> alt.LayerChart:
+    """The pull-up window: Rp against Cb on log axes, the allowed band shaded.
+
+    Parameters
+    ----------
+    cb : array_like
+        Bus capacitances at which the bounds were computed. [F]
+    rp_min : float or array_like
+        Lowest pull-up at each ``cb`` (from the sink current); a float for a flat
+        line. [Ω]
+    rp_max : float or array_like
+        Highest pull-up at each ``cb`` (from the rise time). [Ω]
+    chosen_cb : float
+        The bus capacitance of the design. [F]
+    chosen_rp : float
+        The pull-up chosen for it. [Ω]
+    title, subtitle : str, optional
+        Chart title and a line below it. [1]
+    rp_min_label, rp_max_label, region_label, chosen_label : str, optional
+        Legend entries; ``chosen_label`` defaults to the point's values. [1]
+    width, height : int, optional
+        Plot size. [px]
+
+    Returns
+    -------
+    altair.LayerChart
+        Band (area), the two bounds (lines) and the chosen point; both axes log.
+
+    Notes
+    -----
+    Where ``rp_max < rp_min`` there is no window; the band is drawn with no height
+    there (its top is ``max(rp_min, rp_max)``), the two lines still show the gap.
+    """
+    alt = _alt()
+    c = _array(cb, "cb")
+    try:
+        lo = np.broadcast_to(_array(rp_min, "rp_min", ndim=(0, 1)), c.shape)
+        hi = np.broadcast_to(_array(rp_max, "rp_max", ndim=(0, 1)), c.shape)
+    except ValueError:
+        raise InputError("rp_min and rp_max must be floats or arrays as long as cb",
+                         field="rp_max", value=f"{np.shape(rp_min)}, {np.shape(rp_max)}",
+                         expected=f"shape {c.shape}") from None
+    x0 = _scalar(chosen_cb, "chosen_cb", positive=True)
+    y0 = _scalar(chosen_rp, "chosen_rp", positive=True)
+    ok_lo = _keep(c, lo, positive=(True, True))
+    ok_hi = _keep(c, hi, positive=(True, True))
+    if not ok_lo.any() and not ok_hi.any():
+        raise InputError("no point of the window can be drawn on log axes", field="cb",
+                         expected="positive finite cb with positive rp_min/rp_max")
+
+    fx, ux = display_scale(np.append(c[ok_lo | ok_hi], x0), "F", log=True)
+    fy, uy = display_scale(np.concatenate([lo[ok_lo], hi[ok_hi], [y0]]), "Ω", log=True)
+    chosen_label = chosen_label or f"chosen: {format_si(y0, 'Ω')} at {format_si(x0, 'F')}"
+    domain = [region_label, rp_min_label, rp_max_label, chosen_label]
+    bounds = _colours([rp_min_label, rp_max_label], taken=(REGION, OPERATING))
+    colour = alt.Color("series:N", scale=_scale_pair(domain, [REGION, *bounds, OPERATING]),
+                       legend=_legend(None))
+    x_title = _title("Bus capacitance Cb", ux)
+    y_title = _title("Pull-up resistance Rp", uy)
+
+    ok_band = ok_lo & ok_hi
+    top = np.maximum(lo, hi)  # display clip: no band where the window is closed
+    band = [{"cb": _num(a * fx), "lo": _num(b * fy), "hi": _num(t * fy), "series": region_label}
+            for a, b, t in zip(c[ok_band], lo[ok_band], top[ok_band])]
+    lines = ([{"cb": _num(a * fx), "rp": _num(b * fy), "series": rp_min_label}
+              for a, b in zip(c[ok_lo], lo[ok_lo])]
+             + [{"cb": _num(a * fx), "rp": _num(b * fy), "series": rp_max_label}
+                for a, b in zip(c[ok_hi], hi[ok_hi])])
+    point = [{"cb": _num(x0 * fx), "rp": _num(y0 * fy), "series": chosen_label}]
+
+    area = alt.Chart(alt.Data(values=band)).mark_area(opacity=_REGION_OPACITY).encode(
+        x=_q("cb", x_title, log=True), y=_q("lo", y_title, log=True, channel="y"),
+        y2="hi:Q", color=colour)
+    curves = alt.Chart(alt.Data(values=lines)).mark_line(strokeWidth=2).encode(
+        x=_q("cb", x_title, log=True), y=_q("rp", y_title, log=True, channel="y"),
+        color=colour, detail="series:N")
+    marker = alt.Chart(alt.Data(values=point)).mark_point(
+        shape="diamond", filled=True, size=140, opacity=1).encode(
+        x=_q("cb", x_title, log=True), y=_q("rp", y_title, log=True, channel="y"),
+        color=colour,
+        tooltip=[alt.Tooltip("cb:Q", title=x_title), alt.Tooltip("rp:Q", title=y_title)])
+    return _titled(alt.layer(area, curves, marker), title, subtitle, width, height)
+
+
+def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
+                 log_x: bool = False, log_y: bool = False, edge_label: str = "Edge time",
+                 title: str | None = "Edge time against load", subtitle: str | None = None,
+                 width: int = _WIDTH, height: int = _HEIGHT) -> alt.LayerChart:
+    """Edge time against load capacitance, one curve per driver or edge.
+
+    Parameters
+    ----------
+    loads : array_like
+        Load capacitances of the curves (1-D, shared by every curve). [F]
+    edge_times : array_like
+        Edge times, 1-D (one curve) or 2-D of shape ``(curves, len(loads))``. [s]
+    points : tuple, optional
+        Datasheet points ``(loads, times, labels)``: arrays of loads [F] and times [s]
+        and a label per point (or one label for all). A label equal to a curve's name
+        takes that curve's colour. [F, s, 1]
+    operating : tuple, optional
+        The operating point ``(load, time)`` or ``(load, time, label)``. [F, s, 1]
+    series : str or sequence of str, optional
+        The name of each curve (legend); default ``"model"`` for one curve, else
+        ``"curve 1"``, ``"curve 2"``... [1]
+    log_x, log_y : bool, optional
+        Logarithmic load / time axis. [1]
+    edge_label : str, optional
+        What the time axis shows, e.g. ``"Rise time 10-90 %"``. [1]
+    title, subtitle : str, optional
+        Chart title and a line below it. [1]
+    width, height : int, optional
+        Plot size. [px]
+
+    Returns
+    -------
+    altair.LayerChart
+        Curves (lines), then datasheet points and the operating point (point marks
+        with a shape legend).
+    """
+    alt = _alt()
+    x = _array(loads, "loads")
+    y = _array(edge_times, "edge_times", ndim=(1, 2))
+    y2 = y[np.newaxis, :] if y.ndim == 1 else y
+    if y2.shape[1] != x.size:
+        raise InputError("edge_times do not match loads", field="edge_times",
+                         value=f"shape {y.shape}", expected=f"{x.size} values per curve")
+    if series is None:
+        names = ["model"] if y2.shape[0] == 1 else [f"curve {i + 1}" for i in
+                                                     range(y2.shape[0])]
+    else:
+        names = [series] if isinstance(series, str) else [str(s) for s in series]
+    if len(names) != y2.shape[0] or len(set(names)) != len(names):
+        raise InputError("series needs one distinct name per curve", field="series",
+                         value=names, expected=f"{y2.shape[0]} distinct names")
+
+    px = py = np.zeros(0)
+    plabels: list[str] = []
+    if points is not None:
+        if len(points) != 3:
+            raise InputError("points must be (loads, times, labels)", field="points",
+                             value=_short(points), expected="a 3-tuple")
+        px = _array(points[0], "points.loads", ndim=(0, 1)).ravel()
+        py = _array(points[1], "points.times", ndim=(0, 1)).ravel()
+        lab = points[2]
+        plabels = [lab] * px.size if isinstance(lab, str) else [str(s) for s in lab]
+        if not (px.size == py.size == len(plabels)):
+            raise InputError("points: loads, times and labels differ in length",
+                             field="points",
+                             value=f"{px.size}, {py.size}, {len(plabels)}",
+                             expected="equal lengths")
+    op = None
+    if operating is not None:
+        if len(operating) not in (2, 3):
+            raise InputError("operating must be (load, time) or (load, time, label)",
+                             field="operating", value=_short(operating),
+                             expected="a 2- or 3-tuple")
+        op = (_scalar(operating[0], "operating.load", positive=log_x),
+              _scalar(operating[1], "operating.time", positive=log_y),
+              str(operating[2]) if len(operating) == 3 else "operating point")
+
+    xs, ys = np.broadcast_to(x, y2.shape), y2
+    ok = _keep(xs, ys, positive=(log_x, log_y))
+    okp = _keep(px, py, positive=(log_x, log_y))
+    if not ok.any():
+        raise InputError("no point of the curves can be drawn", field="edge_times",
+                         expected="finite values (positive on a log axis)")
+    all_x = np.concatenate([xs[ok], px[okp], [op[0]] if op else []])
+    all_y = np.concatenate([ys[ok], py[okp], [op[1]] if op else []])
+    fx, ux = display_scale(all_x, "F", log=log_x)
+    fy, uy = display_scale(all_y, "s", log=log_y)
+    x_title = _title("Load capacitance", ux)
+    y_title = _title(edge_label, uy)
+
+    domain = _unique([*names, *(plabels[i] for i in np.flatnonzero(okp))])
+    colour = alt.Color("series:N", scale=_scale_pair(domain, _colours(domain, (OPERATING,))),
+                       legend=_legend("Curve"))
+    kinds = (["datasheet"] if okp.any() else []) + ([op[2]] if op else [])
+    shapes = (["diamond"] if okp.any() else []) + (["cross"] if op else [])
+    shape = alt.Shape("kind:N", scale=alt.Scale(domain=kinds, range=shapes),
+                      legend=_legend("Points"))
+
+    rows = [{"load": _num(a * fx), "t": _num(b * fy), "series": names[k]}
+            for k in range(y2.shape[0]) for a, b in zip(xs[k][ok[k]], ys[k][ok[k]])]
+    layers = [alt.Chart(alt.Data(values=rows)).mark_line(strokeWidth=2).encode(
+        x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
+        color=colour, detail="series:N")]
+    tips = [alt.Tooltip("load:Q", title=x_title), alt.Tooltip("t:Q", title=y_title)]
+    if okp.any():
+        pts = [{"load": _num(a * fx), "t": _num(b * fy), "series": s, "kind": "datasheet"}
+               for a, b, s, keep in zip(px, py, plabels, okp) if keep]
+        layers.append(alt.Chart(alt.Data(values=pts)).mark_point(
+            filled=True, size=90, opacity=1).encode(
+            x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
+            color=colour, shape=shape, tooltip=[*tips, alt.Tooltip("series:N", title="part")]))
+    if op:
+        layers.append(alt.Chart(alt.Data(values=[
+            {"load": _num(op[0] * fx), "t": _num(op[1] * fy), "kind": op[2]}])).mark_point(
+            filled=True, size=160, opacity=1, color=OPERATING).encode(
+            x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
+            shape=shape, tooltip=tips))
+    return _titled(alt.layer(*layers), title, subtitle, width, height)
+
+
+def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
+              title: str | None = "Receiver waveforms", subtitle: str | None = None,
+              band_label: str = "undefined (VIL to VIH)", threshold_label: str = "VIL / VIH",
+              width: int = _WIDTH, height: int = _HEIGHT) -> alt.LayerChart:
+    """Receiver voltage against time, with the band between VIL and VIH shaded.
+
+    Parameters
+    ----------
+    t : array_like
+        Time of the samples (1-D, shared by every trace). [s]
+    traces : dict of str to array_like
+        Voltage at the receiver for each case, e.g. ``{"no series R": v0, "33 Ω": v1}``,
+        each as long as ``t``. [V]
+    v_il : float
+        Receiver's highest input low level. [V]
+    v_ih : float
+        Receiver's lowest input high level. [V]
+    vdd : float, optional
+        Supply, drawn as a dotted line when given. [V]
+    title, subtitle : str, optional
+        Chart title and a line below it. [1]
+    band_label, threshold_label : str, optional
+        Legend entries of the band and of the threshold lines. [1]
+    width, height : int, optional
+        Plot size. [px]
+
+    Returns
+    -------
+    altair.LayerChart
+        Band (rect between VIL and VIH), threshold lines with their values written
+        beside them, the optional VDD line, then one line per trace.
+    """
+    alt = _alt()
+    tt = _array(t, "t")
+    if not isinstance(traces, Mapping) or not traces:
+        raise InputError("traces must be a non-empty mapping of label to voltages",
+                         field="traces", value=_short(traces),
+                         expected="{label: array of V}")
+    vs = {}
+    for label, v in traces.items():
+        a = _array(v, f"traces[{label!r}]")
+        if a.shape != tt.shape:
+            raise InputError("trace and time differ in length", field=f"traces[{label!r}]",
+                             value=a.size, expected=f"{tt.size} samples")
+        vs[str(label)] = a
+    lo = _scalar(v_il, "v_il")
+    hi = _scalar(v_ih, "v_ih")
+    if lo > hi:
+        raise InputError("VIL above VIH", field="v_il", value=lo,
+                         expected=f"at most v_ih = {hi}")
+    top = None if vdd is None else _scalar(vdd, "vdd")
+
+    every_v = np.concatenate([*vs.values(), [lo, hi] + ([top] if top is not None else [])])
+    fx, ux = display_scale(tt, "s")
+    fy, uy = display_scale(every_v, "V")
+    x_title = _title("Time", ux)
+    y_title = _title("Voltage at the receiver", uy)
+
+    names = list(vs)
+    vdd_label = None if top is None else f"VDD {format_si(top, 'V')}"
+    fixed = [band_label, threshold_label] + ([vdd_label] if vdd_label else [])
+    fixed_colours = [UNDEFINED, LIMIT] + ([INK] if vdd_label else [])
+    if set(names) & set(fixed):
+        raise InputError("a trace label is also a legend entry of the chart", field="traces",
+                         value=sorted(set(names) & set(fixed)), expected="other labels")
+    colour = alt.Color("series:N",
+                       scale=_scale_pair(fixed + names,
+                                         fixed_colours + _colours(names, fixed_colours)),
+                       legend=_legend(None))
+
+    band = alt.Chart(alt.Data(values=[{"lo": _num(lo * fy), "hi": _num(hi * fy),
+                                       "series": band_label}])).mark_rect(
+        opacity=_BAND_OPACITY).encode(y=_q("lo", y_title, channel="y"), y2="hi:Q",
+                                      color=colour)
+    levels = [{"v": _num(lo * fy), "series": threshold_label,
+               "text": f"VIL {lo * fy:.3g} {uy}"},
+              {"v": _num(hi * fy), "series": threshold_label,
+               "text": f"VIH {hi * fy:.3g} {uy}"}]
+    rules = alt.Chart(alt.Data(values=levels)).mark_rule(strokeDash=[6, 3]).encode(
+        y=_q("v", y_title, channel="y"), color=colour)
+    words = alt.Chart(alt.Data(values=levels)).mark_text(
+        align="right", baseline="bottom", dx=-4, dy=-2, fontSize=10, fontWeight="bold",
+        color=LIMIT).encode(x=alt.value(width), y=_q("v", y_title, channel="y"),
+                            text="text:N")
+    layers = [band, rules, words]
+    if vdd_label:
+        layers.append(alt.Chart(alt.Data(values=[{"v": _num(top * fy), "series": vdd_label}]))
+                      .mark_rule(strokeDash=[2, 3]).encode(
+                          y=_q("v", y_title, channel="y"), color=colour))
+    rows = []
+    for name in names:
+        a = vs[name]
+        ok = _keep(tt, a, positive=(False, False))
+        rows += [{"t": _num(p * fx), "v": _num(q * fy), "series": name}
+                 for p, q in zip(tt[ok], a[ok])]
+    layers.append(alt.Chart(alt.Data(values=rows)).mark_line(strokeWidth=1.8).encode(
+        x=_q("t", x_title), y=_q("v", y_title, channel="y"), color=colour,
+        detail="series:N"))
+    return _titled(alt.layer(*layers), title, subtitle, width, height)
+
+
+def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None = None,
+                  status: Mapping[str, str] | None = None,
+                  available_label: str = "available (half period)",
+                  title: str | None = "Timing budget", subtitle: str | None = None,
+                  width: int = _WIDTH, height: int | None = None) -> alt.LayerChart:
+    """The timing budget as stacked bars, one bar per path.
+
+    Parameters
+    ----------
+    rows : iterable of (str, str, float)
+        ``(path, component, duration)``: each path's bar stacks its components in the
+        order given; a negative duration (a credit) stacks left of zero. [1, 1, s]
+    available : float or dict of str to float, optional
+        Time available to each path (e.g. half the clock period), one float for every
+        path or a value per path; drawn as a tick on the bar. [s]
+    margins : dict of str to float, optional
+        The margin the engine computed for each path, written beside its bar. [s]
+    status : dict of str to str, optional
+        ``"pass"``, ``"warn"`` or ``"fail"`` per path (the colour of the margin);
+        default from the sign of the margin. [1]
+    available_label : str, optional
+        Legend entry of the tick. [1]
+    title, subtitle : str, optional
+        Chart title and a line below it. [1]
+    width, height : int, optional
+        Plot size; the height defaults to 34 px per path. [px]
+
+    Returns
+    -------
+    altair.LayerChart
+        Stacked bars (x: time, y: path), the available-time ticks, the margin labels.
+    """
+    alt = _alt()
+    items = []
+    for i, row in enumerate(rows):
+        try:
+            path, comp, dur = row
+        except (TypeError, ValueError):
+            raise InputError("a budget row must be (path, component, duration)",
+                             field=f"rows[{i}]", value=_short(row),
+                             expected="a 3-tuple") from None
+        items.append((str(path), str(comp), _scalar(dur, f"rows[{i}].duration")))
+    if not items:
+        raise InputError("no budget rows", field="rows", expected="at least one row")
+    paths = _unique(p for p, _, _ in items)
+    comps = _unique(c for _, c, _ in items)
+
+    if available is None:
+        avail: dict[str, float] = {}
+    elif isinstance(available, Mapping):
+        avail = {str(k): _scalar(v, f"available[{k!r}]") for k, v in available.items()}
+    else:
+        value = _scalar(available, "available")
+        avail = dict.fromkeys(paths, value)
+    marg = {str(k): _scalar(v, f"margins[{k!r}]") for k, v in (margins or {}).items()}
+    unknown = sorted((set(avail) | set(marg) | set(status or {})) - set(paths))
+    if unknown:
+        raise InputError("unknown path", field="available/margins/status", value=unknown,
+                         expected=f"one of {paths}")
+    stat = {p: (status or {}).get(p, "pass" if m >= 0.0 else "fail") for p, m in marg.items()}
+    bad = sorted(s for s in stat.values() if s not in STATUS_COLOURS)
+    if bad:
+        raise InputError("unknown status", field="status", value=bad,
+                         expected="'pass', 'warn' or 'fail'")
+
+    # Display prefix from the longest stack or available time (display only).
+    ends = [sum(d for p, _, d in items if p == q and d > 0) for q in paths]
+    fx, ux = display_scale(np.array([*ends, *avail.values(), *map(abs, marg.values())]), "s")
+    x_title = _title("Time", ux)
+    statuses = [s for s in ("pass", "warn", "fail") if s in stat.values()]
+    fixed = ([available_label] if avail else []) + statuses
+    fixed_colours = ([LIMIT] if avail else []) + [STATUS_COLOURS[s] for s in statuses]
+    if set(comps) & set(fixed):
+        raise InputError("a component name is also a legend entry of the chart",
+                         field="rows", value=sorted(set(comps) & set(fixed)),
+                         expected="other names")
+    colour = alt.Color("series:N",
+                       scale=_scale_pair(comps + fixed, _bar_colours(comps, fixed_colours)
+                                         + fixed_colours),
+                       legend=_legend(None, orient="bottom"))
+    y = alt.Y("path:N", sort=paths, axis=alt.Axis(title="Path", labelLimit=220))
+
+    bars = [{"path": p, "series": c, "t": _num(d * fx), "order": i}
+            for i, (p, c, d) in enumerate(items)]
+    layers = [alt.Chart(alt.Data(values=bars)).mark_bar(
+        height={"band": 0.6}, stroke="white", strokeWidth=1).encode(
+        x=alt.X("t:Q", stack="zero", axis=_axis(x_title)), y=y, color=colour,
+        order="order:Q",
+        tooltip=[alt.Tooltip("path:N"), alt.Tooltip("series:N", title="component"),
+                 alt.Tooltip("t:Q", title=x_title)])]
+    if avail:
+        ticks = [{"path": p, "t": _num(v * fx), "series": available_label}
+                 for p, v in avail.items()]
+        layers.append(alt.Chart(alt.Data(values=ticks)).mark_tick(
+            thickness=3, bandSize=0, size=26, opacity=1).encode(
+            x=alt.X("t:Q", axis=_axis(x_title)), y=y, color=colour))
+    if marg:
+        notes = [{"path": p, "text": f"margin {'+' if m >= 0 else ''}{format_si(m, 's')}",
+                  "series": stat[p]} for p, m in marg.items()]
+        layers.append(alt.Chart(alt.Data(values=notes)).mark_text(
+            align="left", dx=8, fontSize=11, fontWeight="bold").encode(
+            x=alt.value(width), y=y, text="text:N", color=colour))
+    return _titled(alt.layer(*layers), title, subtitle, width,
+                   height if height is not None else max(80, 34 * len(paths)))
+
+
+def histogram(samples, *, limit=None, unit: str, label: str, limit_kind: str = "max",
+              bins: int = 40, title: str | None = None, subtitle: str | None = None,
+              count_label: str = "Samples per bin (count)",
+              width: int = _WIDTH, height: int = _HEIGHT) -> alt.LayerChart:
+    """Histogram of Monte Carlo samples of one figure, with its limit.
+
+    Parameters
+    ----------
+    samples : array_like
+        The figure on every sampled board (non-finite samples are left out). [unit]
+    limit : float, optional
+        The check's limit, drawn as a line; the bins are aligned on it so that each bin
+        lies wholly on one side and is coloured pass or fail. [unit]
+    unit : str
+        SI unit of the samples and the limit, e.g. ``"s"``. [1]
+    label : str
+        What the samples are, e.g. ``"Rise time"``. [1]
+    limit_kind : str, optional
+        ``"max"`` (default: a sample passes when ``<= limit``) or ``"min"``
+        (passes when ``>= limit``), as the check applies it. [1]
+    bins : int, optional
+        About how many bins span the samples. [1]
+    title, subtitle : str, optional
+        Chart title (default from ``label``) and a line below it, e.g. the pass
+        fraction the engine reported. [1]
+    count_label : str, optional
+        Title of the count axis. [1]
+    width, height : int, optional
+        Plot size. [px]
+
+    Returns
+    -------
+    altair.LayerChart
+        Bars (``x`` to ``x2``, ``y`` the count), then the limit rule.
+
+    Notes
+    -----
+    Bins of width ``w = span / bins`` have edges at ``limit + k w``. For a maximum limit
+    a bin is ``(a, b]`` and passes when ``b <= limit``; for a minimum it is ``[a, b)``
+    and passes when ``a >= limit`` — the same comparison as the check, so the pass bars
+    hold exactly the samples that pass.
+    """
+    alt = _alt()
+    s = _array(samples, "samples", ndim=(1, 2)).ravel()
+    s = s[np.isfinite(s)]
+    if s.size == 0:
+        raise InputError("no finite sample", field="samples", expected="finite values")
+    if limit_kind not in ("max", "min"):
+        raise InputError("unknown limit kind", field="limit_kind", value=limit_kind,
+                         expected="'max' or 'min'")
+    n = int(bins)
+    if n < 1:
+        raise InputError("too few bins", field="bins", value=bins, expected="at least 1")
+    lim = None if limit is None else _scalar(limit, "limit")
+    lo, hi = float(s.min()), float(s.max())
+    if lim is not None:
+        lo, hi = min(lo, lim), max(hi, lim)
+    span = hi - lo
+    w = span / n if span > 0 else max(abs(lo) * 1e-3, 1e-300)
+    if lim is None:  # bins [a, b), the last one closed
+        start = lo if span > 0 else lo - w / 2
+        k = np.arange((n if span > 0 else 1) + 1)
+        edges = start + w * k
+        idx = np.clip(np.searchsorted(edges, s, side="right") - 1, 0, edges.size - 2)
+        status = np.full(edges.size - 1, "samples", dtype=object)
+    else:
+        if limit_kind == "max":  # bins (a, b]
+            k0 = math.ceil((lo - lim) / w) - 1
+            k1 = math.ceil((hi - lim) / w)
+            side = "left"
+        else:  # bins [a, b)
+            k0 = math.floor((lo - lim) / w)
+            k1 = math.floor((hi - lim) / w) + 1
+            side = "right"
+        k = np.arange(k0, max(k1, k0 + 1) + 1)
+        edges = lim + w * k  # k = 0 gives the limit itself, exactly
+        idx = np.clip(np.searchsorted(edges, s, side=side) - 1, 0, edges.size - 2)
+        k_lo = k[:-1]  # bin i spans edges k_lo[i] .. k_lo[i] + 1
+        ok = (k_lo + 1 <= 0) if limit_kind == "max" else (k_lo >= 0)
+        status = np.where(ok, "pass", "fail").astype(object)
+    counts = np.bincount(idx, minlength=edges.size - 1)
+
+    fx, ux = display_scale(np.append(edges, s[[0]]), unit)
+    x_title = _title(label, ux)
+    if lim is None:
+        domain, colours = ["samples"], [REGION]
+    else:
+        lim_label = f"limit ({limit_kind}) {format_si(lim, unit) if unit else f'{lim:.4g}'}"
+        domain, colours = ["pass", "fail", lim_label], [PASS, FAIL, LIMIT]
+    colour = alt.Color("series:N", scale=_scale_pair(domain, colours), legend=_legend(None))
+    bars = [{"a": _num(edges[i] * fx), "b": _num(edges[i + 1] * fx), "n": int(counts[i]),
+             "z": 0, "series": str(status[i])} for i in range(counts.size)]
+    layers = [alt.Chart(alt.Data(values=bars)).mark_rect(
+        opacity=0.85, stroke="white", strokeWidth=0.5).encode(
+        x=alt.X("a:Q", axis=_axis(x_title), scale=alt.Scale(zero=False)), x2="b:Q",
+        y=alt.Y("n:Q", axis=alt.Axis(title=count_label, format="~s")), y2="z:Q",
+        color=colour,
+        tooltip=[alt.Tooltip("a:Q", title="from"), alt.Tooltip("b:Q", title="to"),
+                 alt.Tooltip("n:Q", title="samples")])]
+    if lim is not None:
+        layers.append(alt.Chart(alt.Data(values=[{"x": _num(lim * fx), "series": lim_label}]))
+                      .mark_rule(strokeWidth=2, strokeDash=[6, 3]).encode(
+                          x=alt.X("x:Q", axis=_axis(x_title)), color=colour))
+    return _titled(alt.layer(*layers), title if title is not None else f"Monte Carlo: {label}",
+                   subtitle, width, height)
+
+
+# --------------------------------------------------------------------------- output
+def _vl_version() -> str | None:
+    """The Vega-Lite version altair writes, as vl_convert names it (``"6.4"``)."""
+    import altair as alt
+    import vl_convert
+
+    wanted = ".".join(alt.SCHEMA_VERSION.lstrip("v").split(".")[:2])
+    known = getattr(vl_convert, "get_vegalite_versions", lambda: [])()
+    return wanted if wanted in known else None
+
+
+def to_svg(chart) -> str:
+    """Render a chart to SVG text with vl-convert (no browser, no network).
+
+    Parameters
+    ----------
+    chart : altair chart, dict or str
+        A chart from this module (or any altair chart), a Vega-Lite spec as a dict, or
+        its JSON text. [1]
+
+    Returns
+    -------
+    str
+        The SVG document; the same chart gives the same bytes.
+    """
+    import json
+
+    import vl_convert
+
+    if isinstance(chart, str):
+        spec = chart
+    elif isinstance(chart, Mapping):
+        spec = json.dumps(chart, sort_keys=True, ensure_ascii=False)
+    else:
+        spec = chart.to_json()
+    version = _vl_version()
+    if version is None:
+        return vl_convert.vegalite_to_svg(spec)
+    return vl_convert.vegalite_to_svg(spec, vl_version=version)
