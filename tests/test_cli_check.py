@@ -57,7 +57,7 @@ def test_demo_design_json(capsys):
     assert doc["caution"] == CAUTION
     assert code == (1 if doc["status"] == "fail" else 0)
     buses = {b["id"]: b for b in doc["buses"]}
-    assert set(buses) == {"sensors", "power"}
+    assert set(buses) == {"sensors", "power", "flash", "display"}
     sensors = buses["sensors"]
     assert sensors["protocol"] == "i2c" and sensors["lines"] == []
     assert [s["id"] for s in sensors["segments"]] == ["main-3v3", "sensor-1v8"]
@@ -152,3 +152,24 @@ def test_no_pandas_or_altair_on_the_check_path():
     proc = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                           cwd=ROOT, timeout=60, check=True)
     assert proc.stdout.strip() == ""
+
+
+# Figure names that DESIGN.md and the push-pull issue promise for every routed line.
+LINE_FIGURES = {"load_capacitance", "trace_delay", "z0", "edge_rise_time", "edge_fall_time",
+                "series_resistor", "overshoot", "undershoot", "transmission_line", "model"}
+SPI_FIGURES = {"max_clock", "cipo_setup_margin", "copi_setup_margin", "copi_hold_margin"}
+
+
+def test_demo_spi_buses_report_line_and_timing_figures(capsys):
+    _, doc = run_json([str(DEMO)], capsys)
+    for bus in doc["buses"]:
+        if bus["protocol"] != "spi":
+            continue
+        assert SPI_FIGURES <= set(bus["figures"])
+        assert bus["lines"], bus["id"]
+        for line in bus["lines"]:
+            assert LINE_FIGURES <= set(line["figures"]), line["signal"]
+            assert isinstance(line["figures"]["transmission_line"]["value"], bool)
+            assert line["figures"]["model"]["value"] in ("lumped", "distributed")
+            for check in line["checks"]:
+                assert check["source"], check["id"]

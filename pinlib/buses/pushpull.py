@@ -1,0 +1,151 @@
+"""Push-pull buses, SPI and GPIO: the engine entry point and single GPIO nets.
+
+:func:`evaluate_bus` takes an ``spi`` or ``gpio`` bus of a loaded design and returns
+its :class:`~pinlib.result.BusResult`:
+
+* every routed signal becomes a :class:`~pinlib.result.LineResult` from the line
+  engine :func:`pinlib.buses.pushline.analyse_line` (edges at the far end, lumped or
+  transmission-line model, series termination, overshoot, ringing, levels);
+* an SPI bus adds the timing budget of :mod:`pinlib.buses.spi` (setup, hold, chip
+  select, ``f_max``, and the figures ``max_clock``, ``cipo_setup_margin``,
+  ``copi_setup_margin``, ``copi_hold_margin``);
+* a GPIO bus is one or more single nets (reset, interrupt, enable), push-pull or
+  open-drain: edge, levels, overshoot.
+
+Which pin of a device sits on a GPIO line: the device's ``pin`` (when the bus has one
+line, or the pin is named like the line), else the pin named like the line, else on a
+one-line bus the part's only ``gpio`` pin.  Pins that drive (push-pull or open-drain)
+are drivers, evaluated in turn; inputs are receivers.  An open-drain net rises through
+the pull-ups that parts on it carry (``pullup``, or ``pullup_internal`` of a device
+with ``internal_pullups = true``); the design format has no pull-up of its own on a
+GPIO line.
+"""
+
+from __future__ import annotations
+
+from pinlib.buses.pushline import Endpoint, analyse_line, device_supply
+from pinlib.buses.spi import evaluate_spi
+from pinlib.design import Bus, Design, Device
+from pinlib.errors import DesignError, InputError
+from pinlib.library.schema import Pin
+from pinlib.result import BusResult, Check
+
+__all__ = ["evaluate_bus", "evaluate_gpio", "gpio_pin"]
+
+
+# --------------------------------------------------------------------------- GPIO
+
+
+def gpio_pin(device: Device, signal: str, n_lines: int) -> tuple[str, Pin] | None:
+    """The pin of a device on a GPIO line (see the module notes for the rule).
+
+    Parameters
+    ----------
+    device : Device
+        A device of the bus. [1]
+    signal : str
+        The line's name. [1]
+    n_lines : int
+        How many lines the bus routes. [1]
+
+    Returns
+    -------
+    tuple of (str, Pin) or None
+        The pin's name and data, or None when the device is not on the line.
+
+    Raises
+    ------
+    DesignError
+        When the device names a pin its part does not have.
+    """
+    side = (device.side or "a") if device.is_bridge else None
+    pins = device.part.sides[side].pins if side else device.part.pins
+    if device.pin is not None and (n_lines == 1 or device.pin == signal):
+        if device.pin not in pins:
+            raise DesignError("the part has no pin of that name", field="pin",
+                              value=device.pin, hint="pins: " + ", ".join(pins))
+        return device.pin, pins[device.pin]
+    if signal in pins:
+        return signal, pins[signal]
+    if n_lines == 1:
+        gp = [(n, p) for n, p in pins.items() if p.function == "gpio"]
+        if len(gp) == 1:
+            return gp[0]
+    return None
+
+
+def evaluate_gpio(bus: Bus, design: Design) -> BusResult:
+    """Evaluate every line of a GPIO bus.
+
+    Parameters
+    ----------
+    bus : Bus
+        A ``gpio`` bus of ``design``. [1]
+    design : Design
+        The loaded design. [1]
+
+    Returns
+    -------
+    BusResult
+        One line result per routed line (see the module notes).
+    """
+    res = BusResult(id=bus.id, protocol=bus.protocol)
+    if not bus.lines:
+        res.notes.append("no routed lines")
+    for sig, line in bus.lines.items():
+        eps = []
+        for d in bus.devices:
+            got = gpio_pin(d, sig, len(bus.lines))
+            if got is not None:
+                eps.append(Endpoint(d, got[0], got[1], device_supply(d, bus)))
+        drivers = [e for e in eps if e.drives]
+        receivers = [e for e in eps if e.pin.drive == "input"]
+        if not drivers:
+            raise DesignError(f"no device drives the gpio line {sig}",
+                              field=f"bus.{bus.id}.lines.{sig}",
+                              hint="give each device's pin (pin = \"NAME\") or use parts with "
+                                   "a push-pull or open-drain pin of that name")
+        pp = [e for e in drivers if e.pin.drive == "push-pull"]
+        la = analyse_line(sig, line, drivers, eps, receivers, clock=bus.clock,
+                          clock_line=False, warn_margin=design.warn_margin)
+        if len(pp) > 1:
+            la.result.add(Check("contention", "warn", len(pp), 1, "", None,
+                                "two push-pull outputs on one net must never drive at once "
+                                "(common practice)",
+                                f"{len(pp)} push-pull drivers on {sig}: "
+                                + ", ".join(e.label for e in pp)))
+        res.lines.append(la.result)
+    return res
+
+
+# --------------------------------------------------------------------------- entry
+
+
+def evaluate_bus(bus: Bus, design: Design) -> BusResult:
+    """Evaluate an ``spi`` or ``gpio`` bus.
+
+    Parameters
+    ----------
+    bus : Bus
+        The bus, from a loaded design. [1]
+    design : Design
+        The design it belongs to (warning margin, library). [1]
+
+    Returns
+    -------
+    BusResult
+        Per routed line a :class:`LineResult`; for SPI the timing checks and the bus
+        figures ``max_clock``, ``cipo_setup_margin``, ``copi_setup_margin`` and
+        ``copi_hold_margin``.
+
+    Raises
+    ------
+    DesignError
+        A line no device drives, a controller without the outputs an SPI bus needs.
+    """
+    if bus.protocol == "spi":
+        return evaluate_spi(bus, design)
+    if bus.protocol == "gpio":
+        return evaluate_gpio(bus, design)
+    raise InputError("the push-pull engine evaluates spi and gpio buses", field="protocol",
+                     value=bus.protocol, expected="'spi' or 'gpio'")

@@ -1,0 +1,569 @@
+"""Tests of the push-pull line engine (pinlib.buses.pushline) and the GPIO bus engine.
+
+Whole lines built by the engine from test parts are checked against ngspice (lossless
+``T`` elements, a PWL ramp behind a resistor, the pins as one capacitor at the far end):
+the netlist is written from the same sections, driver and loads the engine used, so
+every run regenerates its reference.  The other checks use closed forms (RC edges),
+the eseries package and common-practice figures, each marked where it comes from.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import doctest
+import inspect
+import math
+import re
+from pathlib import Path
+
+import eseries as eseries_pkg
+import numpy as np
+import pytest
+from spice import have_ngspice, run_deck
+
+from pinlib.buses import pushline, pushpull
+from pinlib.buses.pushline import (
+    EDGE_FRACTION,
+    LONG_LINE_FRACTION,
+    Endpoint,
+    Stretch,
+    analyse_line,
+    auto_series_resistor,
+    needs_distributed,
+    stretches_of,
+)
+from pinlib.buses.pushpull import evaluate_bus
+from pinlib.design import Device, Line, Section, load_design
+from pinlib.errors import DesignError, InputError
+from pinlib.library import load_library
+from pinlib.physics import rc
+
+DATA = Path(__file__).parent / "data" / "pushpull"
+DEMO = Path(__file__).parents[1] / "workbooks" / "designs" / "demo-board.toml"
+needs_ngspice = pytest.mark.skipif(not have_ngspice(), reason="ngspice not on PATH")
+
+VDD = 3.3
+EDGE_REL_TOL = 0.03          # 10-90 % edge against ngspice, relative (issue 4)
+SWING_TOL = 0.05 * VDD       # overshoot / undershoot against ngspice, of the swing [V]
+
+LINE_FIGURES = {"load_capacitance", "trace_delay", "z0", "edge_rise_time", "edge_fall_time",
+                "series_resistor", "overshoot", "undershoot", "transmission_line", "model"}
+
+
+@pytest.fixture(scope="module")
+def lib():
+    return load_library([DATA], builtin=False, env=False)
+
+
+def device(lib, ref, part, role="peripheral", supply=None):
+    return Device(ref, part, lib.parts[part], role, supply)
+
+
+def pin(dev, name, vdd=VDD):
+    return Endpoint(dev, name, dev.part.pins[name], vdd)
+
+
+def trace50(length):
+    """A 50 Ω trace given by its per-length values: 1 pF/cm and 50 ps/cm."""
+    return Section(length, None, 1e-10, 5e-9)
+
+
+def controller_line(lib, sections, rs="none", extra=0.0, *, signal="sclk", part="pp-ctrl",
+                    receivers=1, clock=None, rx_supply=None):
+    ctrl = device(lib, "U1", part, "controller")
+    drv = pin(ctrl, signal)
+    rxs = [pin(device(lib, f"U{i + 2}", "pp-periph", supply=rx_supply), signal,
+               rx_supply or VDD) for i in range(receivers)]
+    line = Line(signal, tuple(sections), rs, extra)
+    return analyse_line(signal, line, [drv], [drv] + rxs, rxs, clock=clock,
+                        clock_line=(signal == "sclk"))
+
+
+# --------------------------------------------------------------------------- ngspice
+
+
+def spice_deck(analysis, edge):
+    """The engine's circuit for one edge as an ngspice netlist: ramp, R, T..., C."""
+    case = analysis.cases["U1"]
+    model = case.model
+    if edge == "rise":
+        r, ramp, v0, v1 = model.r_rise + case.rs, model.t_ramp_rise, 0.0, VDD
+    else:
+        r, ramp, v0, v1 = model.r_fall + case.rs, model.t_ramp_fall, VDD, 0.0
+    lines = ["* engine-built line", f"V1 src 0 PWL(0 {v0} {ramp:.6g} {v1})",
+             f"R1 src n0 {r:.9g}"]
+    node, k, c_far = "n0", 0, case.c_far
+    for s in analysis.stretches:
+        if s.td > 0:
+            k += 1
+            lines.append(f"T{k} {node} 0 n{k} 0 Z0={s.z0:.9g} TD={s.td:.9g}")
+            node = f"n{k}"
+        else:
+            c_far += s.c
+    lines.append(f"C1 {node} 0 {c_far:.9g}")
+    wave = case.wave(edge)
+    t_stop = float(wave.t[-1])
+    step = min(5e-12, t_stop / 20000)  # RECIPES.md: always give TMAX
+    if edge == "rise":
+        meas = [f".meas tran ta WHEN v({node})={0.1 * VDD} RISE=1",
+                f".meas tran tb WHEN v({node})={0.9 * VDD} RISE=1",
+                f".meas tran vext MAX v({node})"]
+    else:
+        meas = [f".meas tran ta WHEN v({node})={0.9 * VDD} FALL=1",
+                f".meas tran tb WHEN v({node})={0.1 * VDD} FALL=1",
+                f".meas tran vext MIN v({node})"]
+    lines += [f".tran {step:.6g} {t_stop:.6g} 0 {step:.6g}"] + meas + [".end"]
+    return "\n".join(lines)
+
+
+# Engine-built cases: (id, sections, series resistor, extra capacitance, expected model).
+# Short and long lines; Rs none, matched ("auto"), larger than matched; small and large
+# loads; a chain with a cable (custom cases, invented).
+SPICE_CASES = [
+    ("short-2cm-none", [trace50(0.02)], "none", 0.0, "distributed"),
+    ("short-1cm-rc", [trace50(0.01)], 150.0, 50e-12, "lumped"),
+    ("long-20cm-none", [trace50(0.20)], "none", 0.0, "distributed"),
+    ("long-20cm-auto", [trace50(0.20)], "auto", 0.0, "distributed"),
+    ("long-20cm-60ohm", [trace50(0.20)], 60.0, 0.0, "distributed"),
+    ("long-20cm-100pF", [trace50(0.20)], "none", 100e-12, "distributed"),
+    ("chain-ribbon", [trace50(0.05), Section(0.30, None, 0.5e-10, 5.5e-9, 110.0, "t-ribbon"),
+                      trace50(0.02)], "none", 20e-12, "distributed"),
+]
+
+
+@pytest.mark.spice
+@needs_ngspice
+@pytest.mark.parametrize(("case_id", "sections", "rs", "extra", "model"), SPICE_CASES,
+                         ids=[c[0] for c in SPICE_CASES])
+def test_whole_line_matches_ngspice(lib, case_id, sections, rs, extra, model):
+    a = controller_line(lib, sections, rs, extra)
+    assert a.result.figures["model"].value == model
+    case = a.cases["U1"]
+    for edge in ("rise", "fall"):
+        got = run_deck(spice_deck(a, edge), ["ta", "tb", "vext"])
+        t_spice = got["tb"] - got["ta"]
+        wave = case.wave(edge)
+        assert wave.t_edge == pytest.approx(t_spice, rel=EDGE_REL_TOL)
+        if edge == "rise":
+            assert wave.overshoot == pytest.approx(max(got["vext"] - VDD, 0.0), abs=SWING_TOL)
+        else:
+            assert wave.undershoot == pytest.approx(max(-got["vext"], 0.0), abs=SWING_TOL)
+
+
+# --------------------------------------------------------------------------- model choice
+
+
+def test_electrical_length_rule_and_ratio(lib):
+    # derived from the rule: long when one-way delay > edge / 6 (Johnson & Graham)
+    a = controller_line(lib, [trace50(0.05)])
+    edge = a.edge_alone
+    assert a.ratio == pytest.approx(a.delay / edge, rel=1e-12)
+    for ratio in (0.5 * LONG_LINE_FRACTION, 0.99 * LONG_LINE_FRACTION,
+                  1.01 * LONG_LINE_FRACTION, 2.0):
+        length = ratio * edge / 5e-9  # 50 ps/cm = 5 ns/m
+        b = controller_line(lib, [trace50(length)])
+        assert b.edge_alone == pytest.approx(edge, rel=1e-12)
+        assert b.long is (ratio > LONG_LINE_FRACTION)
+        assert b.result.figures["transmission_line"].value is (ratio > LONG_LINE_FRACTION)
+        assert b.result.figures["delay_to_edge_ratio"].value == pytest.approx(ratio, rel=1e-9)
+
+
+def test_lumped_only_when_inductance_negligible():
+    # derived from the series-RLC dominant pole: RC within ~1 % when L/(R^2 C) <= 0.01
+    st = [Stretch(0.01, 50.0, 50e-12, 1e-12, "x")]   # L = 2.5 nH
+    c_far = 49e-12                                   # C = 50 pF
+    r_edge = math.sqrt(2.5e-9 / (0.01 * 50e-12))     # L/(R^2 C) = 0.01 at R = 70.7 Ω
+    assert needs_distributed(st, 1.01 * r_edge, c_far, False) is False
+    assert needs_distributed(st, 0.99 * r_edge, c_far, False) is True
+    assert needs_distributed(st, 1e3, c_far, True) is True
+    assert needs_distributed([Stretch(0.01, math.nan, 0.0, 1e-12, "c only")], 1.0, c_far,
+                             True) is False
+
+
+def test_zero_length_line_is_a_ramp_through_rc(lib):
+    # derived from a linear ramp through a single RC pole (rc.ramp_rc_edge_time):
+    # 20 Ω and the 1 ns default ramp into the receiver's 5 pF plus 45 pF extra
+    a = controller_line(lib, [], "none", 45e-12)
+    assert a.result.figures["model"].value == "lumped"
+    assert a.result.figures["transmission_line"].value is False
+    expected = rc.ramp_rc_edge_time(1e-9, 20.0 * 50e-12)
+    assert a.result.figures["edge_rise_time"].value == pytest.approx(expected, rel=1e-3)
+    assert a.result.figures["load_capacitance"].value == pytest.approx(50e-12, rel=1e-12)
+    assert a.result.figures["z0"].value != a.result.figures["z0"].value  # NaN: no line
+
+
+def test_issue_common_practice_edge_into_100pF(lib):
+    # common practice, no source (issue 4): a 1 ns edge, 20 Ω output and a 33 Ω series
+    # resistor into 100 pF lands between 10 and 20 ns (10-90 %)
+    ctrl = device(lib, "U1", "pp-ctrl", "controller")
+    drv = pin(ctrl, "sclk")
+    a = analyse_line("sclk", Line("sclk", (), 33.0, 100e-12), [drv], [drv], [])
+    edge = a.result.figures["edge_rise_time"].value
+    assert 10e-9 <= edge <= 20e-9
+
+
+def test_sections_from_geometry_per_length_and_cable(tmp_path):
+    body = """
+[board.geometry.ms]
+kind = "microstrip"
+width = "0.30 mm"
+height = "0.20 mm"
+thickness = "35 µm"
+er = 4.3
+
+[[bus]]
+id = "s"
+protocol = "spi"
+clock = "10 MHz"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "pp-ctrl", role = "controller" },
+  { ref = "U2", part = "pp-periph" },
+]
+
+[bus.lines.sclk]
+sections = [
+  { length = "4 cm", capacitance = "1.1 pF/cm", delay = "58 ps/cm" },
+  { length = "2 cm", geometry = "ms" },
+  { part = "pp-cable", length = "25 cm" },
+]
+"""
+    design = _design(tmp_path, body)
+    st = stretches_of(design.bus("s").lines["sclk"].sections)
+    # derived from Z0 = tpd / C: 1.1 pF/cm and 58 ps/cm -> 52.73 Ω (REFERENCES.md, per length)
+    assert st[0].z0 == pytest.approx(5.8e-9 / 1.1e-10, rel=1e-12)
+    assert st[0].td == pytest.approx(5.8e-9 * 0.04, rel=1e-12)
+    assert st[0].c == pytest.approx(1.1e-10 * 0.04, rel=1e-12)
+    # published: scikit-rf 2.2 MLine(w=0.3 mm, h=0.2 mm, t=35 µm, er 4.3): Z0 55.08 Ω
+    # (REFERENCES.md, Board traces)
+    assert st[1].z0 == pytest.approx(55.08, abs=0.01)
+    # the cable class's own impedance and delay (pp-cable: 100 Ω, 5 ns/m, 0.5 pF/cm)
+    assert st[2].z0 == pytest.approx(100.0, rel=1e-12)
+    assert st[2].td == pytest.approx(5e-9 * 0.25, rel=1e-12)
+    assert st[2].c == pytest.approx(0.5e-10 * 0.25, rel=1e-12)
+
+
+# --------------------------------------------------------------------------- termination
+
+
+def test_auto_series_resistor_is_e24_nearest_of_z0_minus_r_out():
+    # derived from Rs = Z0 - Rout (REFERENCES.md, series termination), E24 of IEC 60063:
+    # 50 - 20 = 30 -> 30 Ω; 50 - 17 = 33 -> 33 Ω; 64.1 - 30 = 34.1 -> 33 Ω
+    assert auto_series_resistor(50.0, 20.0) == 30.0
+    assert auto_series_resistor(50.0, 17.0) == 33.0
+    assert auto_series_resistor(64.1, 30.0) == 33.0
+    # a driver at or above Z0 needs none
+    assert auto_series_resistor(50.0, 50.0) == 0.0
+    assert auto_series_resistor(50.0, 70.0) == 0.0
+    assert auto_series_resistor(float("nan"), 20.0) == 0.0
+    # against the eseries package (linear nearest; away from the geometric midpoints the
+    # two rules agree)
+    z0 = np.array([45.0, 50.0, 55.0, 60.0, 75.0, 90.0])
+    r = np.array([12.0, 25.0, 18.0, 30.0, 20.0, 15.0])
+    ours = auto_series_resistor(z0, r)
+    ref = [eseries_pkg.find_nearest(eseries_pkg.E24, x) for x in z0 - r]
+    assert ours == pytest.approx(ref, rel=1e-12)
+    # the array gives what the scalars give one by one
+    assert list(ours) == [auto_series_resistor(a, b) for a, b in zip(z0, r)]
+
+
+def test_common_practice_series_resistor_for_cmos_sources():
+    # common practice, no source: CMOS outputs are about 10-30 Ω, and 22-33 Ω series
+    # resistors bring them near a 50 Ω line: auto picks 22-33 Ω for 17-28 Ω sources
+    for r_out in np.linspace(17.0, 28.0, 12):
+        assert 22.0 <= auto_series_resistor(50.0, r_out) <= 33.0
+
+
+@pytest.mark.parametrize("rs", [22.0, 33.0])
+def test_22_to_33_ohm_tames_a_50_ohm_line(lib, rs):
+    # common practice, no source: with 22-33 Ω after a 20 Ω source on a 50 Ω line the
+    # far end barely overshoots (under 10 % of the swing); without it, it rings hard
+    bare = controller_line(lib, [trace50(0.25)], "none")
+    tamed = controller_line(lib, [trace50(0.25)], rs)
+    assert bare.result.figures["overshoot"].value > 0.3 * VDD
+    assert tamed.result.figures["overshoot"].value < 0.1 * VDD
+    assert tamed.result.figures["series_resistor"].value == rs
+
+
+def test_auto_termination_on_a_long_line(lib):
+    # derived: Z0 = 50 ps/cm / 1 pF/cm = 50 Ω, r_out 20 Ω -> 30 Ω (E24)
+    a = controller_line(lib, [trace50(0.25)], "auto")
+    f = a.result.figures
+    assert f["transmission_line"].value is True
+    assert f["series_resistor"].value == 30.0
+    chk = a.result.check("series-termination")
+    assert chk.details["rs_ideal"] == pytest.approx(30.0, rel=1e-12)
+    without, with_ = chk.details["without"], chk.details["with"]
+    assert with_["overshoot"] < 0.1 * without["overshoot"]
+    assert with_["edge_rise_time"] > without["edge_rise_time"]
+    assert with_["overshoot"] == f["overshoot"].value
+    # the unterminated figures are those of the same line with "none"
+    bare = controller_line(lib, [trace50(0.25)], "none").result.figures
+    assert without["overshoot"] == pytest.approx(bare["overshoot"].value, rel=1e-12)
+    assert without["edge_rise_time"] == pytest.approx(bare["edge_rise_time"].value, rel=1e-12)
+
+
+def test_auto_termination_none_on_a_short_clean_line(lib):
+    a = controller_line(lib, [trace50(0.01)], "auto")
+    assert a.long is False
+    assert a.result.figures["series_resistor"].value == 0.0
+    assert any("auto series resistor: none" in n for n in a.result.notes)
+
+
+def test_fixed_series_resistor_is_reported(lib):
+    a = controller_line(lib, [trace50(0.1)], 47.0)
+    assert a.result.figures["series_resistor"].value == 47.0
+    assert a.result.check("series-termination") is None
+
+
+# --------------------------------------------------------------------------- checks
+
+
+def test_ringing_fails_on_the_clock_and_warns_on_data(lib):
+    # a 10 Ω pull-down into an open 50 Ω line: the falling edge comes back above VIL
+    sclk = controller_line(lib, [trace50(0.2)], signal="sclk", part="pp-ctrl-asym")
+    copi = controller_line(lib, [trace50(0.2)], signal="copi", part="pp-ctrl-asym")
+    rs, rc_ = sclk.result.check("ringing"), copi.result.check("ringing")
+    assert rs.status == "fail" and rs.value >= 1
+    assert rc_.status == "warn" and rc_.value == rs.value
+    assert rs.details["fall_recrossings"] >= 1
+    # a matched series resistor removes it
+    ok = controller_line(lib, [trace50(0.2)], 39.0, signal="sclk", part="pp-ctrl-asym")
+    assert ok.result.check("ringing").status == "pass"
+
+
+def test_overshoot_and_levels_at_the_receivers_own_supply(lib):
+    # derived: abs_max VDD + 0.5 V at the receiver's 2.5 V allows 0.5 V above 2.5 V;
+    # VIH 0.7 VDD = 1.75 V, VIL 0.3 VDD = 0.75 V at 2.5 V
+    a = controller_line(lib, [trace50(0.02)], rx_supply=2.5)
+    over = a.result.check("overshoot")
+    assert over.limit == pytest.approx(0.5, rel=1e-12)
+    assert over.value == pytest.approx(VDD + a.result.figures["overshoot"].value - 2.5,
+                                       rel=1e-12)
+    assert over.status == "fail"
+    assert "pp-periph" in over.source
+    assert a.result.check("level-high").limit == pytest.approx(1.75, rel=1e-12)
+    assert a.result.check("level-low").limit == pytest.approx(0.75, rel=1e-12)
+    # undershoot: at most min(abs_max - VDD, 0.5 V) below ground
+    assert a.result.check("undershoot").limit == pytest.approx(0.5, rel=1e-12)
+
+
+def test_edge_time_against_a_fraction_of_the_period(lib):
+    a = controller_line(lib, [trace50(0.05)], clock=20e6)
+    chk = a.result.check("edge-time")
+    assert chk.limit == pytest.approx(EDGE_FRACTION / 20e6, rel=1e-12)
+    f = a.result.figures
+    assert chk.value == max(f["edge_rise_time"].value, f["edge_fall_time"].value)
+    assert controller_line(lib, [trace50(0.05)]).result.check("edge-time") is None
+
+
+def test_line_figures_are_all_there(lib):
+    a = controller_line(lib, [trace50(0.05)], "auto", clock=10e6)
+    out = a.result.to_json()
+    assert LINE_FIGURES <= set(out["figures"])
+    assert out["figures"]["transmission_line"]["value"] in (True, False)
+    assert out["figures"]["model"]["value"] in ("lumped", "distributed")
+    for name in ("load_capacitance",):
+        assert out["figures"][name]["unit"] == "F"
+    for name in ("trace_delay", "edge_rise_time", "edge_fall_time"):
+        assert out["figures"][name]["unit"] == "s"
+    assert out["figures"]["overshoot"]["unit"] == "V"
+
+
+def test_a_line_nobody_drives_is_an_error(lib):
+    with pytest.raises(DesignError, match="no device drives"):
+        analyse_line("sclk", Line("sclk", (trace50(0.01),), "none"), [], [], [])
+
+
+def test_load_excludes_the_drivers_own_pin(lib):
+    # derived: a driver's pin capacitance is inside its datasheet edges; its load is the
+    # trace (1 pF/cm x 4 cm) and the two receivers' 5 pF each
+    a = controller_line(lib, [trace50(0.04)], receivers=2)
+    assert a.result.figures["load_capacitance"].value == pytest.approx(4e-12 + 10e-12,
+                                                                       rel=1e-12)
+
+
+# --------------------------------------------------------------------------- buses
+
+
+def _design(tmp_path, body, name="d.toml"):
+    text = f"""format = "pinlib.design/1"
+title = "test (invented)"
+library = ["{DATA.as_posix()}"]
+
+{body}
+"""
+    path = tmp_path / name
+    path.write_text(text, encoding="utf-8")
+    return load_design(path)
+
+
+def test_cipo_is_loaded_by_every_peripheral(tmp_path):
+    body = """
+[[bus]]
+id = "s"
+protocol = "spi"
+clock = "10 MHz"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "pp-ctrl", role = "controller" },
+  { ref = "U2", part = "pp-periph" },
+  { ref = "U3", part = "pp-periph" },
+  { ref = "U4", part = "pp-periph" },
+]
+lines.sclk = { length = "4 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }
+lines.cipo = { length = "4 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }
+"""
+    d = _design(tmp_path, body)
+    res = evaluate_bus(d.bus("s"), d)
+    lines = {ln.signal: ln for ln in res.lines}
+    # derived: each peripheral drives CIPO into the trace (4 pF), the controller's 5 pF
+    # and the two other peripherals' 6 pF CIPO pins
+    assert lines["cipo"].figures["load_capacitance"].value == pytest.approx(
+        4e-12 + 5e-12 + 2 * 6e-12, rel=1e-12)
+    # SCLK: the trace and three 5 pF inputs (the controller's own pin excluded)
+    assert lines["sclk"].figures["load_capacitance"].value == pytest.approx(
+        4e-12 + 3 * 5e-12, rel=1e-12)
+    # every peripheral gets its CIPO budget
+    subjects = {c.subject for c in res.checks if c.id == "cipo-setup"}
+    assert subjects == {"U2", "U3", "U4"}
+
+
+def test_gpio_push_pull_and_open_drain_nets(tmp_path):
+    body = """
+[[bus]]
+id = "reset"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "pp-ctrl", role = "controller", pin = "reset" },
+  { ref = "U2", part = "pp-periph", pin = "reset" },
+]
+
+[bus.lines.reset]
+length = "6 cm"
+capacitance = "1 pF/cm"
+delay = "50 ps/cm"
+series_resistor = "auto"
+
+[[bus]]
+id = "irq"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "pp-ctrl", role = "controller", pin = "irq" },
+  { ref = "U2", part = "pp-periph", pin = "irq" },
+  { ref = "M1", part = "pp-pullup-module", pin = "irq" },
+]
+lines.irq = { length = "6 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }
+"""
+    d = _design(tmp_path, body)
+    reset = evaluate_bus(d.bus("reset"), d)
+    (ln,) = reset.lines
+    assert ln.signal == "reset" and ln.status == "pass"
+    # derived: 6 cm at 50 ps/cm is long for a 1 ns ramp; Rs = 50 - 20 = 30 Ω (E24)
+    assert ln.figures["series_resistor"].value == 30.0
+    assert ln.check("level-high").value == pytest.approx(VDD, rel=1e-12)  # rail-to-rail
+
+    irq = evaluate_bus(d.bus("irq"), d)
+    (ln,) = irq.lines
+    c_total = 6e-12 + 5e-12 + 5e-12  # trace, controller input, module input
+    assert ln.figures["load_capacitance"].value == pytest.approx(c_total, rel=1e-12)
+    # derived from the RC step (REFERENCES.md, RC edges): 10-90 % = ln 9 Rp C through the
+    # module's 4.7 kΩ pull-up (a pull-up >> Z0 charges the line as one capacitance)
+    assert ln.figures["edge_rise_time"].value == pytest.approx(
+        math.log(9.0) * 4.7e3 * c_total, rel=1e-3)
+    # derived: the low level is the sink (0.4 V / 4 mA = 100 Ω) against the pull-up,
+    # minus nothing; the high level drops by the leakage (3 x 1 µA) through 4.7 kΩ
+    v_high = VDD - 3e-6 * 4.7e3
+    assert ln.check("level-low").value == pytest.approx(v_high * 100 / 4800, rel=1e-9)
+    assert ln.check("level-high").value == pytest.approx(v_high, rel=1e-9)
+    assert ln.status == "pass"
+
+
+def test_gpio_open_drain_without_pullup_fails(tmp_path):
+    body = """
+[[bus]]
+id = "irq"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "pp-ctrl", role = "controller", pin = "irq" },
+  { ref = "U2", part = "pp-periph", pin = "irq" },
+]
+lines.irq = { length = "6 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }
+"""
+    d = _design(tmp_path, body)
+    res = evaluate_bus(d.bus("irq"), d)
+    assert res.lines[0].check("pull-up").status == "fail"
+    assert res.status == "fail"
+
+
+def test_engine_refuses_other_protocols(tmp_path):
+    body = """
+[[bus]]
+id = "s"
+protocol = "spi"
+clock = "10 MHz"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "pp-ctrl", role = "controller" },
+  { ref = "U2", part = "pp-periph" },
+]
+lines.sclk = { length = "4 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }
+"""
+    d = _design(tmp_path, body)
+    with pytest.raises(InputError, match="spi and gpio"):
+        evaluate_bus(dataclasses.replace(d.bus("s"), protocol="i2c"), d)
+
+
+# --------------------------------------------------------------------------- demo
+
+
+@pytest.mark.skipif(not DEMO.is_file(), reason="demo design not present")
+def test_demo_flash_short_and_display_terminated():
+    d = load_design(DEMO)
+    flash = evaluate_bus(d.bus("flash"), d)
+    display = evaluate_bus(d.bus("display"), d)
+    fl = {ln.signal: ln for ln in flash.lines}
+    di = {ln.signal: ln for ln in display.lines}
+    assert fl["sclk"].figures["transmission_line"].value is False
+    assert fl["sclk"].figures["series_resistor"].value == 0.0
+    assert di["sclk"].figures["transmission_line"].value is True
+    rs = di["sclk"].figures["series_resistor"].value
+    z0 = di["sclk"].figures["z0"].value
+    # derived: Rs = E24 nearest of Z0 - r_out with the class's 30 Ω output
+    assert rs == auto_series_resistor(z0, 30.0) and rs > 0
+    chk = di["sclk"].check("series-termination")
+    assert chk.details["with"]["overshoot"] < chk.details["without"]["overshoot"]
+    assert flash.status != "fail" and display.status != "fail"
+    assert {"max_clock", "cipo_setup_margin", "copi_setup_margin", "copi_hold_margin"} <= set(
+        flash.figures)
+
+
+def test_pushline_all_is_importable():
+    for name in pushline.__all__:
+        assert hasattr(pushline, name)
+
+
+# --------------------------------------------------------------------------- API guards
+
+PUBLIC_FUNCTIONS = [getattr(pushline, n) for n in pushline.__all__
+                    if inspect.isfunction(getattr(pushline, n))] + [
+    pushpull.evaluate_bus, pushpull.evaluate_gpio, pushpull.gpio_pin]
+
+
+@pytest.mark.parametrize("func", PUBLIC_FUNCTIONS, ids=lambda f: f.__name__)
+def test_docstring_parameters_match_signature_and_carry_units(func):
+    doc = inspect.getdoc(func)
+    section = doc.split("Parameters\n----------\n", 1)[1].split("\n\n", 1)[0]
+    documented = re.findall(r"^(\w+) : ", section, flags=re.M)
+    assert documented == list(inspect.signature(func).parameters)
+    descriptions = re.split(r"^\w+ : .*$", section, flags=re.M)[1:]
+    assert all(re.search(r"\[[^\]]+\]\s*$", d.strip()) for d in descriptions)
+
+
+def test_docstring_examples():
+    result = doctest.testmod(pushline, optionflags=doctest.NORMALIZE_WHITESPACE)
+    assert result.attempted > 0
+    assert result.failed == 0

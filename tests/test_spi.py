@@ -1,0 +1,267 @@
+"""Tests of the SPI timing budget (pinlib.buses.spi): modes, margins, max_clock.
+
+Published and derived check values are marked where they are used; the buses are
+built from the invented test parts in tests/data/pushpull.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import doctest
+import inspect
+import re
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from pinlib.buses import spi
+from pinlib.buses.pushline import EDGE_FRACTION, endpoint
+from pinlib.buses.pushpull import evaluate_bus
+from pinlib.design import load_design
+from pinlib.errors import InputError
+
+DATA = Path(__file__).parent / "data" / "pushpull"
+
+TRACE = '{ length = "LEN", capacitance = "1 pF/cm", delay = "50 ps/cm", series_resistor = "auto" }'
+
+
+def write_design(tmp_path, *, mode=0, clock="20 MHz", length="5 cm", controller="pp-ctrl",
+                 peripherals=("pp-periph",), extra_devices="", extra_library=None,
+                 name="d.toml", signals=("sclk", "copi", "cipo", "cs")):
+    devices = [f'{{ ref = "U1", part = "{controller}", role = "controller" }}']
+    devices += [f'{{ ref = "U{i + 2}", part = "{p}" }}' for i, p in enumerate(peripherals)]
+    if extra_devices:
+        devices.append(extra_devices)
+    lines = "\n".join(f"lines.{s} = {TRACE.replace('LEN', length)}" for s in signals)
+    libs = [DATA.as_posix()] + ([Path(extra_library).as_posix()] if extra_library else [])
+    text = f"""format = "pinlib.design/1"
+title = "SPI test bus (invented)"
+library = [{", ".join(f'"{p}"' for p in libs)}]
+
+[[bus]]
+id = "s"
+protocol = "spi"
+spi_mode = {mode}
+clock = "{clock}"
+supply = "3.3 V"
+devices = [
+  {(',' + chr(10) + '  ').join(devices)},
+]
+{lines}
+"""
+    path = tmp_path / name
+    path.write_text(text, encoding="utf-8")
+    d = load_design(path)
+    return d, d.bus("s")
+
+
+# --------------------------------------------------------------------------- modes
+
+
+def test_mode_table():
+    # published: REFERENCES.md, SPI [C2]: mode 0 idle low, sample rising, change falling;
+    # 1 sample falling, change rising; 2 idle high, sample falling (leading), change
+    # rising; 3 sample rising (trailing), change falling
+    published = {0: (0, 0, "low", "rise", "fall"), 1: (0, 1, "low", "fall", "rise"),
+                 2: (1, 0, "high", "fall", "rise"), 3: (1, 1, "high", "rise", "fall")}
+    for n, (cpol, cpha, idle, sample, launch) in published.items():
+        m = spi.spi_mode(n)
+        assert (m.cpol, m.cpha, m.idle, m.sample_edge, m.launch_edge) == (
+            cpol, cpha, idle, sample, launch)
+        # the leading edge leaves the idle level; CPHA 0 samples on it, CPHA 1 on the other
+        assert m.first_edge == ("rise" if idle == "low" else "fall")
+        assert (m.sample_edge == m.first_edge) is (cpha == 0)
+    with pytest.raises(InputError, match="SPI mode"):
+        spi.spi_mode(4)
+
+
+@pytest.mark.parametrize("mode", [0, 1, 2, 3])
+def test_budget_uses_each_modes_edges(tmp_path, mode):
+    # the asymmetric controller pulls SCLK up through 60 Ω and down through 10 Ω, so the
+    # two SCLK edges reach the peripheral at clearly different times
+    d, bus = write_design(tmp_path, mode=mode, controller="pp-ctrl-asym")
+    sa = spi.spi_analysis(bus, d)
+    m = spi.SPI_MODES[mode]
+    case = sa.lines["sclk"].cases["U1"]
+    rx = endpoint(bus.devices[1], "spi-sclk", bus)
+    flights = {e: case.flight(rx, e) for e in ("rise", "fall")}
+    assert abs(flights["rise"].late - flights["fall"].late) > 0.05e-9
+    assert abs(flights["rise"].early - flights["fall"].early) > 0.05e-9
+    terms = {t.id: t for t in sa.terms}
+    assert terms["copi-setup"].parts["sclk_early"] == flights[m.sample_edge].early
+    assert terms["copi-hold"].parts["sclk_late"] == flights[m.sample_edge].late
+    assert terms["cipo-setup"].parts["sclk_late"] == flights[m.launch_edge].late
+    assert terms["cipo-hold"].parts["sclk_early"] == flights[m.launch_edge].early
+    assert terms["cs-setup"].parts["sclk_early"] == flights[m.first_edge].early
+
+
+# --------------------------------------------------------------------------- margins
+
+
+def test_published_isolated_loop_example():
+    # published: an isolated-SPI application note (REFERENCES.md, SPI [C2]):
+    # T_CLK,min = 2 (tptot + tsu), 160 ns + 5 ns -> about 3 MHz
+    assert spi.max_clock([0.5], [160e-9 + 5e-9]) == pytest.approx(3.0e6, abs=0.05e6)
+    # the same budget through the CIPO margin: T/2 - (160 ns total loop) >= 5 ns
+    period = 1.0 / spi.max_clock([0.5], [165e-9])
+    assert spi.cipo_setup_available(period, 0.0, 160e-9, 0.0) == pytest.approx(5e-9,
+                                                                             rel=1e-12)
+
+
+def test_margin_functions_vectorised():
+    rng = np.random.default_rng(4)
+    p, a, b, c, d = rng.uniform(1e-9, 50e-9, size=(5, 7))
+    for fn, args in ((spi.copi_setup_available, (p, a, b, c)),
+                     (spi.copi_hold_available, (p, a, b)),
+                     (spi.cipo_setup_available, (p, a, b, c, d)),
+                     (spi.cipo_hold_available, (p, a, b)),
+                     (spi.cs_setup_available, (p, a, b))):
+        arr = fn(*args)
+        one = [fn(*(x[i] for x in args)) for i in range(7)]
+        assert arr == pytest.approx(one, rel=1e-15)
+    # derived by hand: T/2 = 20 ns; 20 + 0.5 - 8 - 1.5 = 11 ns
+    assert spi.copi_setup_available(40e-9, 0.5e-9, 8e-9, 1.5e-9) == pytest.approx(11e-9)
+    k = rng.uniform(0, 30e-9, size=(7, 3))
+    many = spi.max_clock(np.full((7, 3), 0.5), k, 1e9)
+    assert many == pytest.approx([spi.max_clock([0.5] * 3, row, 1e9) for row in k])
+
+
+def test_max_clock_limits():
+    # a fixed margin that is negative: no clock at all; nothing period-dependent: f_limit
+    assert spi.max_clock([0.0, 0.5], [1e-9, 10e-9]) == 0.0
+    assert spi.max_clock([0.0], [-1e-9], 50e6) == 50e6
+    assert spi.max_clock([0.5], [-1e-9]) == np.inf
+    with pytest.raises(InputError):
+        spi.max_clock([-0.5], [1e-9])
+
+
+# --------------------------------------------------------------------------- buses
+
+
+def _worst_margin(sa, clock):
+    period = 1.0 / clock
+    out = [float(t.margin(period)) for t in sa.terms]
+    out += [EDGE_FRACTION * period - e for _, e in sa.edge_terms]
+    return min(out)
+
+
+def test_max_clock_solves_the_margins(tmp_path):
+    d, bus = write_design(tmp_path)
+    sa = spi.spi_analysis(bus, d)
+    f = sa.max_clock()
+    assert 1e6 < f < 500e6  # timing-limited, below the parts' 500 MHz
+    assert abs(_worst_margin(sa, f)) < 1e-15
+    assert _worst_margin(sa, f * 0.999) > 0 > _worst_margin(sa, f * 1.001)
+    res = evaluate_bus(bus, d)
+    assert res.figures["max_clock"].value == pytest.approx(f, rel=1e-12)
+    assert res.figures["max_clock"].unit == "Hz"
+
+
+def test_clock_just_below_max_passes_just_above_fails(tmp_path):
+    d, bus = write_design(tmp_path, length="12 cm")
+    f = spi.spi_analysis(bus, d).max_clock()
+    below = evaluate_bus(dataclasses.replace(bus, clock=f * (1 - 1e-6)), d)
+    above = evaluate_bus(dataclasses.replace(bus, clock=f * (1 + 1e-6)), d)
+    assert below.status != "fail"
+    assert above.status == "fail"
+    failing = [c for c in above.checks if c.status == "fail"] + [
+        c for ln in above.lines for c in ln.checks if c.status == "fail"]
+    assert failing  # the binding requirement shows which one
+
+
+def test_max_clock_falls_with_trace_length(tmp_path):
+    d, bus = write_design(tmp_path)
+    lengths = np.array([0.01, 0.03, 0.06, 0.1, 0.2, 0.4])
+    f = spi.max_clock_vs_length(bus, d, lengths)
+    assert np.all(np.diff(f) < 0)
+    # a single length agrees with the full evaluation of that design
+    d2, bus2 = write_design(tmp_path, length="10 cm", name="d2.toml")
+    assert f[3] == pytest.approx(evaluate_bus(bus2, d2).figures["max_clock"].value, rel=1e-9)
+
+
+def test_max_clock_falls_with_t_valid(tmp_path):
+    d, bus = write_design(tmp_path)
+    tv = np.linspace(2e-9, 40e-9, 9)
+    f = spi.max_clock_vs_t_valid(bus, d, tv, "U2")
+    assert np.all(np.diff(f) < 0)
+    # against a full evaluation with a part whose t_valid is 20 ns
+    lib = tmp_path / "lib"
+    lib.mkdir()
+    (lib / "slow.toml").write_text('''format = "pinlib.part/1"
+id = "pp-periph-slow"
+title = "Test peripheral with a slow read-back"
+category = "memory"
+extends = "pp-periph"
+provenance = { basis = "estimate", source = "test data, invented" }
+
+[timing]
+t_valid = "20 ns"
+''', encoding="utf-8")
+    d2, bus2 = write_design(tmp_path, peripherals=("pp-periph-slow",), extra_library=lib,
+                            name="d2.toml")
+    full = evaluate_bus(bus2, d2).figures["max_clock"].value
+    assert spi.max_clock_vs_t_valid(bus, d, 20e-9, "U2") == pytest.approx(full, rel=1e-12)
+
+
+def test_isolator_round_trip_counts_twice(tmp_path):
+    iso = '{ ref = "U9", part = "pp-isolator" }'
+    d0, bus0 = write_design(tmp_path)
+    d1, bus1 = write_design(tmp_path, extra_devices=iso, name="iso.toml")
+    t0 = {t.id: t for t in spi.spi_analysis(bus0, d0).terms}
+    t1 = {t.id: t for t in spi.spi_analysis(bus1, d1).terms}
+    # derived: the CIPO loop crosses the 10 ns isolator twice; forward paths cancel
+    assert t1["cipo-setup"].b == pytest.approx(t0["cipo-setup"].b - 2 * 10e-9, rel=1e-12)
+    assert t1["copi-setup"].b == pytest.approx(t0["copi-setup"].b, rel=1e-12)
+    assert t1["cipo-setup"].parts["bridges_round_trip"] == pytest.approx(20e-9)
+
+
+def test_bus_figures_and_f_max(tmp_path):
+    d, bus = write_design(tmp_path, clock="20 MHz")
+    res = evaluate_bus(bus, d)
+    for name in ("max_clock", "cipo_setup_margin", "copi_setup_margin", "copi_hold_margin"):
+        assert name in res.figures
+    for name in ("cipo_setup_margin", "copi_setup_margin", "copi_hold_margin"):
+        assert res.figures[name].unit == "s"
+    # the margin figures are the checks' available minus required time
+    setup = res.check("cipo-setup")
+    assert res.figures["cipo_setup_margin"].value == pytest.approx(setup.value - setup.limit,
+                                                                   rel=1e-12)
+    # derived from the peripheral's t_setup (2 ns) and the half period (25 ns)
+    copi = res.check("copi-setup")
+    assert copi.limit == 2e-9
+    assert copi.value == pytest.approx(25e-9 + copi.details["sclk_early"] - 5e-9
+                                       - copi.details["copi_late"], rel=1e-12)
+    f = res.check("f-max")
+    assert f.limit == 500e6 and f.status == "pass"
+    fast = evaluate_bus(dataclasses.replace(bus, clock=600e6), d)
+    assert any(c.id == "f-max" and c.status == "fail" for c in fast.checks)
+
+
+def test_unrouted_cipo_skips_the_read_budget(tmp_path):
+    d, bus = write_design(tmp_path, signals=("sclk", "copi", "cs"))
+    res = evaluate_bus(bus, d)
+    assert res.figures["cipo_setup_margin"].value is None
+    assert not any(c.id.startswith("cipo") for c in res.checks)
+    assert any("cipo_setup_margin" in n for n in res.notes)
+
+
+# --------------------------------------------------------------------------- API guards
+
+PUBLIC_FUNCTIONS = [getattr(spi, n) for n in spi.__all__ if inspect.isfunction(getattr(spi, n))]
+
+
+@pytest.mark.parametrize("func", PUBLIC_FUNCTIONS, ids=lambda f: f.__name__)
+def test_docstring_parameters_match_signature_and_carry_units(func):
+    doc = inspect.getdoc(func)
+    section = doc.split("Parameters\n----------\n", 1)[1].split("\n\n", 1)[0]
+    documented = re.findall(r"^(\w+) : ", section, flags=re.M)
+    assert documented == list(inspect.signature(func).parameters)
+    descriptions = re.split(r"^\w+ : .*$", section, flags=re.M)[1:]
+    assert all(re.search(r"\[[^\]]+\]\s*$", d.strip()) for d in descriptions)
+
+
+def test_docstring_examples():
+    result = doctest.testmod(spi, optionflags=doctest.NORMALIZE_WHITESPACE)
+    assert result.attempted > 0
+    assert result.failed == 0
