@@ -548,7 +548,7 @@ def test_single_segment_bus_puts_figures_on_the_bus(tmp_path):
         assert c.source, c.id
 
 
-def test_check_design_dispatches_and_skips_missing_engines(tmp_path, monkeypatch):
+def test_check_design_dispatches_each_protocol_to_its_engine(tmp_path, monkeypatch):
     body = one_bus() + """
 [[bus]]
 id = "spi"
@@ -559,20 +559,12 @@ devices = [{ ref = "U1", part = "mcu-3v3", role = "controller" }]
 lines.sclk = { length = "5 cm", capacitance = "1 pF/cm" }
 """
     d = design(tmp_path, body)
-    import importlib
-
-    real = importlib.import_module
-
-    def fake(name, *a, **k):
-        if name == "pinlib.buses.pushpull":
-            raise ModuleNotFoundError(name=name)
-        return real(name, *a, **k)
-
-    monkeypatch.setattr(importlib, "import_module", fake)
     result = check_design(d)
     assert [b.id for b in result.buses] == ["b", "spi"]
+    assert result.bus("b").protocol == "i2c" and "pullup" in result.bus("b").figures
     spi = result.bus("spi")
-    assert spi.checks == [] and "not available" in spi.notes[0]
+    assert [ln.signal for ln in spi.lines] == ["sclk"]
+    assert "max_clock" in spi.figures
 
 
 def test_collect_exposes_the_inputs(tmp_path):
