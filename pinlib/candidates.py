@@ -1,0 +1,526 @@
+"""Which library parts could stand in one position of a design, ranked.
+
+:func:`rank_candidates` takes a design and a reference designator, keeps every
+placeable part of the merged library that can serve the position on every bus it sits
+on (:func:`pinlib.compare.can_serve`: the same pin functions, drives the position
+allows), evaluates the design with each in its place, and ranks them: by status
+(pass, then warn, then fail), then by the worst margin of the checks on those buses
+that the part can move (:data:`FIXED_CHECKS` count for the status only), a tie broken
+by the next worst margin and so on.
+Each candidate carries the check that sets its worst margin and the figures that
+matter for the bus (bus capacitance, rise time, low level and the pull-up chosen).
+
+On an open-drain bus (I2C, SMBus) the candidates are evaluated together: the
+position's pin values are stacked into arrays and the bus goes through
+:func:`pinlib.buses.odbatch.build` once per group of candidates of the same structure
+(which pins drive, which carry pull-ups...), ``auto`` pull-ups chosen for each.  A
+position on a push-pull bus (SPI, GPIO), or a bridging part, is evaluated one
+candidate at a time by its engine, and the ranking says so.
+:func:`rank_candidates_slow` evaluates every candidate that way, with
+:meth:`pinlib.design.Design.with_parts` and :func:`pinlib.check.check_design`: the
+reference the tests hold the vectorized ranking to.
+
+Nothing here computes a figure: the engines do.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from pinlib.buses import odbatch as ob
+from pinlib.buses import opendrain as od
+from pinlib.compare import can_serve
+from pinlib.design import Bus, Design, Device
+from pinlib.errors import DesignError, InputError, PinlibError
+from pinlib.library.schema import CATEGORIES, Part
+from pinlib.progress import progress_bar
+from pinlib.quantity import format_si
+from pinlib.result import STATUSES, BusResult, worst
+
+__all__ = [
+    "FORMAT",
+    "FIGURES",
+    "FIXED_CHECKS",
+    "Candidate",
+    "Ranking",
+    "positions",
+    "eligible",
+    "rank_candidates",
+    "rank_candidates_slow",
+]
+
+#: Format tag of a ranking's JSON form.
+FORMAT = "pinlib.candidates/1"
+
+#: The figures shown for each candidate, by protocol family, with their units.
+FIGURES = {
+    "open-drain": (("bus_capacitance", "F"), ("rise_time", "s"), ("v_ol", "V"),
+                   ("pullup_resistor", "Ω")),
+    "push-pull": (("max_clock", "Hz"),),
+}
+
+#: Checks no part in a plain position can move: the bus clock against its mode's
+#: limit, a pass-transistor translator's gate drive and the facing of static-offset
+#: sides.  They count for the status but not for the worst margin, which would
+#: otherwise often be the same 0 % (a bus run at its mode's maximum clock) for every
+#: candidate.
+FIXED_CHECKS = ("scl-frequency", "bridge-gate-drive", "bridge-offset-facing")
+
+_OPEN_DRAIN = ("i2c", "smbus")
+_RANK = {"pass": 0, "warn": 1, "fail": 2, "error": 3}
+
+
+def _ranks(check_id: str, dev) -> bool:
+    """Whether a check's margin counts for a candidate's worst margin."""
+    return dev.is_bridge or check_id not in FIXED_CHECKS
+
+
+@dataclass
+class Candidate:
+    """One part evaluated in the position.
+
+    Attributes
+    ----------
+    part : str
+        Its id. [1]
+    status : str
+        ``pass``, ``warn``, ``fail`` over the buses the position is on; ``error`` when a
+        bus cannot be evaluated with it. [1]
+    worst_margin : float or None
+        The smallest margin of any check on those buses that the part can move (not
+        :data:`FIXED_CHECKS`); a margin that cannot be computed counts as −inf. [1]
+    worst_check : dict or None
+        Where that margin is: ``bus``, ``segment``, ``line``, ``id``, ``subject``. [1]
+    figures : dict
+        By bus id: the figures that matter (see :data:`FIGURES`), SI with units. [SI]
+    current : bool
+        The part the design holds now. [1]
+    method : str
+        ``"vectorized"`` or ``"per-candidate"``. [1]
+    margins : tuple of float
+        Every margin that counts for the ranking, smallest first (−inf for one that
+        cannot be computed); candidates of equal status are ordered by these in
+        turn. [1]
+    """
+
+    part: str
+    title: str
+    category: str
+    status: str
+    worst_margin: float | None
+    worst_check: dict | None
+    figures: dict = field(default_factory=dict)
+    current: bool = False
+    method: str = "vectorized"
+    error: str | None = None
+    margins: tuple = ()
+
+    def sort_key(self):
+        # status first; then the margins smallest first, compared in turn (a tie on the
+        # worst margin — a clock at the slowest device's maximum, say — is broken by the
+        # next worst); then the id
+        return (_RANK[self.status], tuple(-m for m in self.margins), self.part)
+
+    def to_json(self) -> dict:
+        return {"part": self.part, "title": self.title, "category": self.category,
+                "status": self.status, "worst_margin": _num(self.worst_margin),
+                "worst_check": self.worst_check,
+                "figures": {b: {k: {"value": _num(v), "unit": u} for k, (v, u) in f.items()}
+                            for b, f in self.figures.items()},
+                "current": self.current, "method": self.method, "error": self.error}
+
+
+def _num(x):
+    if x is None:
+        return None
+    x = float(x)
+    return x if math.isfinite(x) else None
+
+
+@dataclass
+class Ranking:
+    """Every candidate of a position, best first."""
+
+    design: str
+    ref: str
+    current: str
+    buses: list[dict]
+    candidates: list[Candidate]
+    excluded: int
+    library_size: int
+    notes: list[str] = field(default_factory=list)
+
+    def candidate(self, part_id: str) -> Candidate:
+        for c in self.candidates:
+            if c.part == part_id:
+                return c
+        raise KeyError(part_id)
+
+    def to_json(self, top: int | None = None) -> dict:
+        shown = self.candidates if top is None else self.candidates[:top]
+        return {"format": FORMAT, "design": self.design, "ref": self.ref,
+                "current": self.current, "buses": self.buses,
+                "library_parts": self.library_size, "excluded": self.excluded,
+                "count": len(self.candidates),
+                "candidates": [c.to_json() for c in shown], "notes": list(self.notes)}
+
+    def format_text(self, top: int | None = 20) -> str:
+        where = "; ".join(f"bus {b['bus']} ({b['protocol']}"
+                          + (f", segment {b['segment']}" if b.get("segment") else "")
+                          + f", {b['role']})" for b in self.buses)
+        lines = [f"position {self.ref}, now {self.current}: {where}",
+                 f"{len(self.candidates)} of {self.library_size} placeable parts can serve it "
+                 f"({self.excluded} cannot: pin functions or drives)"]
+        shown = self.candidates if top is None else self.candidates[:top]
+        if shown:
+            fig_cols = []
+            for b in self.buses:
+                for name, unit in FIGURES["open-drain" if b["protocol"] in _OPEN_DRAIN
+                                          else "push-pull"]:
+                    fig_cols.append((b["bus"], name, unit))
+            multi = len(self.buses) > 1
+            head = ["#", "part", "status", "worst", "set by"] + [
+                (f"{n}@{b}" if multi else n) for b, n, _ in fig_cols]
+            rows = []
+            for i, c in enumerate(shown, 1):
+                wc = c.worst_check
+                by = "—" if wc is None else " ".join(
+                    x for x in (wc["bus"] if multi else None, wc.get("segment"), wc.get("line"),
+                                wc["id"], wc.get("subject") if not wc.get("line") else None) if x)
+                row = [str(i), c.part + (" *" if c.current else ""),
+                       c.status.upper() if c.status != "pass" else c.status,
+                       "—" if c.worst_margin is None or not math.isfinite(c.worst_margin)
+                       else f"{c.worst_margin * 100:+.1f} %", by if c.status != "error" else
+                       (c.error or "")]
+                for b, n, unit in fig_cols:
+                    v = c.figures.get(b, {}).get(n)
+                    row.append("—" if v is None or v[0] is None else format_si(v[0], unit))
+                rows.append(row)
+            widths = [max(len(r[k]) for r in rows + [head]) for k in range(len(head))]
+            lines.append("")
+            lines.append("  ".join(h.ljust(w) for h, w in zip(head, widths, strict=True)).rstrip())
+            for r in rows:
+                lines.append("  ".join(x.ljust(w) for x, w in zip(r, widths, strict=True)).rstrip())
+            if len(shown) < len(self.candidates):
+                lines.append(f"… {len(self.candidates) - len(shown)} more (--top N)")
+            lines.append("* the part in the design now")
+        for n in self.notes:
+            lines.append(f"note: {n}")
+        return "\n".join(lines) + "\n"
+
+
+# ============================================================================ eligibility
+
+
+def positions(design: Design, ref: str) -> list[tuple[Bus, Device]]:
+    """Every (bus, device) where the reference designator sits.
+
+    Raises
+    ------
+    DesignError
+        When no device has that reference.
+    """
+    out = [(b, d) for b in design.buses for d in b.devices if d.ref == ref]
+    if not out:
+        refs = sorted({d.ref for b in design.buses for d in b.devices})
+        raise DesignError("no device with this reference", file=str(design.path or ""),
+                          field="REF", value=ref, hint="devices: " + ", ".join(refs))
+    return out
+
+
+def _per_bus(places) -> list[tuple[Bus, Device]]:
+    """One place per bus (a bridging part sits on its bus twice, once per side)."""
+    out, seen = [], set()
+    for bus, dev in places:
+        if bus.id not in seen:
+            seen.add(bus.id)
+            out.append((bus, dev))
+    return out
+
+
+def eligible(design: Design, ref: str, categories=None) -> tuple[list[Part], int]:
+    """The placeable parts that can serve the position on every bus it is on.
+
+    Parameters
+    ----------
+    design : Design
+        The design (its merged library). [1]
+    ref : str
+        The position's reference designator. [1]
+    categories : iterable of str, optional
+        Only parts of these categories. [1]
+
+    Returns
+    -------
+    parts : list of Part
+        In id order; the part there now included (when it matches the categories).
+    excluded : int
+        Parts of those categories that cannot serve the position.
+    """
+    places = positions(design, ref)
+    cats = set(categories or ())
+    unknown = cats - set(CATEGORIES)
+    if unknown:
+        raise InputError("unknown category", field="category", value=sorted(unknown)[0],
+                         expected="one of " + ", ".join(CATEGORIES))
+    out, excluded = [], 0
+    for _pid, part in sorted(design.library.placeable().items()):
+        if part.category == "cable" or (cats and part.category not in cats):
+            continue
+        if any(can_serve(dev.part, part, dev, bus) for bus, dev in places):
+            excluded += 1
+            continue
+        out.append(part)
+    return out, excluded
+
+
+def _bus_rows(places) -> list[dict]:
+    rows = []
+    for bus, dev in places:
+        seg = next((s.id for s in bus.segments if any(d is dev for d in s.devices)), None)
+        rows.append({"bus": bus.id, "protocol": bus.protocol,
+                     "segment": seg if len(bus.segments) > 1 else None, "role": dev.role})
+    return rows
+
+
+# ============================================================================ summaries
+
+
+def _margin_key(m):
+    return -math.inf if m is None or math.isnan(m) else m
+
+
+def _summary_of(results: list[BusResult], places) -> tuple:
+    """Status, worst margin, where it is, the figures and the ranked margins, from
+    engine results."""
+    status = worst(r.status for r in results)
+    best, where, margins = None, None, []
+    for r, (_, dev) in zip(results, places, strict=True):
+        for seg_id, line, c in r.all_checks():
+            if c.margin is None or not _ranks(c.id, dev):
+                continue
+            m = _margin_key(c.margin)
+            margins.append(m)
+            if best is None or m < best:
+                best, where = m, {"bus": r.id, "segment": seg_id, "line": line, "id": c.id,
+                                  "subject": c.subject}
+    figures = {}
+    for r, (bus, dev) in zip(results, places, strict=True):
+        if bus.protocol in _OPEN_DRAIN:
+            group = r
+            if r.segments:
+                seg = next(s.id for s in bus.segments if any(d.ref == dev.ref
+                                                               for d in s.devices))
+                group = next(s for s in r.segments if s.id == seg)
+            figs = FIGURES["open-drain"]
+        else:
+            group, figs = r, FIGURES["push-pull"]
+        figures[r.id] = {n: (_fig(group, n), u) for n, u in figs}
+    return status, best, where, figures, sorted(margins)
+
+
+def _fig(group, name):
+    f = group.figures.get(name)
+    if f is None or f.value is None or isinstance(f.value, (bool, str)):
+        return None
+    return float(f.value)
+
+
+def _candidate(part: Part, current: str, method: str, summary) -> Candidate:
+    status, m, where, figures, margins = summary
+    return Candidate(part.id, part.title, part.category, status, m, where, figures,
+                     part.id == current, method, margins=tuple(margins))
+
+
+def _failed(part: Part, current: str, method: str, err: PinlibError) -> Candidate:
+    return Candidate(part.id, part.title, part.category, "error", None, None, {},
+                     part.id == current, method, err.message)
+
+
+def _one(design: Design, ref: str, part: Part, places, buses=None):
+    """Engine results of the buses in ``buses`` (all places by default) with the part
+    in the position."""
+    from pinlib.check import evaluate_bus
+
+    swapped = design.with_parts({ref: part.id})
+    return [evaluate_bus(swapped.bus(bus.id), swapped) for bus, _ in places
+            if buses is None or bus.id in buses]
+
+
+# ============================================================================ ranking
+
+
+def rank_candidates_slow(design: Design, ref: str, *, categories=None,
+                         progress=None) -> Ranking:
+    """Rank the candidates of a position one at a time: the design rebuilt with each
+    (:meth:`~pinlib.design.Design.with_parts`) and its buses evaluated by their
+    engines.  Same arguments and result as :func:`rank_candidates`."""
+    places = _per_bus(positions(design, ref))
+    parts, excluded = eligible(design, ref, categories)
+    current = places[0][1].part_id
+    out = []
+    with progress_bar(len(parts), desc=f"candidates for {ref}", unit="part",
+                      enabled=progress) as bar:
+        for part in parts:
+            try:
+                out.append(_candidate(part, current, "per-candidate",
+                                      _summary_of(_one(design, ref, part, places), places)))
+            except PinlibError as err:
+                out.append(_failed(part, current, "per-candidate", err))
+            bar.update(1)
+    out.sort(key=Candidate.sort_key)
+    return Ranking(design.title, ref, current, _bus_rows(places), out, excluded,
+                   len(design.library.placeable()))
+
+
+def _batch_summaries(bus: Bus, dev: Device, design: Design, ref: str, parts: list[Part],
+                     collected) -> list[tuple]:
+    """Per candidate: (status code, worst margin, where, figures) on one open-drain bus,
+    from one batch."""
+    bb = ob.build(bus, design, ob.WorstCase(len(parts)), swap=(ref, parts), collected=collected)
+    cols, where = [], []
+    status = np.zeros(len(parts), dtype=np.int8)
+    single = len(bus.segments) == 1
+    for seg_id, c in bb.checks():
+        status = np.maximum(status, c.status)
+        if c.margin is None or not _ranks(c.id, dev):
+            continue
+        cols.append(np.where(np.isnan(c.margin), -np.inf, c.margin))
+        where.append({"bus": bus.id, "segment": None if single else seg_id,
+                      "line": None, "id": c.id, "signal": c.signal})
+    seg = next(s.id for s in bus.segments if any(d.ref == ref for d in s.devices))
+    sb = next(s for s in bb.segments if s.id == seg)
+    out = []
+    if cols:
+        mg = np.stack(cols, axis=1)
+        idx = np.argmin(mg, axis=1)
+        ranked = np.sort(mg, axis=1)
+    for j in range(len(parts)):
+        figs = {}
+        for name, unit in FIGURES["open-drain"]:
+            arr = sb.figures.get(name)
+            figs[name] = (None if arr is None else float(arr[j]), unit)
+        if cols:
+            m, w, ms = float(mg[j, idx[j]]), dict(where[idx[j]]), ranked[j].tolist()
+        else:
+            m, w, ms = None, None, []
+        out.append((int(status[j]), m, w, figs, ms))
+    return out
+
+
+def rank_candidates(design: Design, ref: str, *, categories=None, progress=None) -> Ranking:
+    """Rank every library part that could serve a position of a design.
+
+    Parameters
+    ----------
+    design : Design
+        A loaded design (its merged library is searched). [1]
+    ref : str
+        The reference designator of the position (``"U4"``). [1]
+    categories : iterable of str, optional
+        Only parts of these categories. [1]
+    progress : bool, callable or None, optional
+        Progress bar (see :func:`pinlib.progress.progress_bar`). [1]
+
+    Returns
+    -------
+    Ranking
+        Candidates best first: by status (pass, warn, fail; ``error`` last), then by
+        worst margin, then by id.
+
+    Raises
+    ------
+    DesignError
+        When no device has that reference.
+    """
+    places = _per_bus(positions(design, ref))
+    parts, excluded = eligible(design, ref, categories)
+    current = places[0][1].part_id
+    notes = []
+    fast_buses = [bus for bus, dev in places
+                  if bus.protocol in _OPEN_DRAIN and not dev.is_bridge]
+    slow_buses = [bus.id for bus, _ in places if bus not in fast_buses]
+    for bus, dev in places:
+        if bus in fast_buses:
+            continue
+        why = ("a bridging part" if dev.is_bridge else
+               f"the {bus.protocol} engine simulates each edge in time and has no vectorized "
+               "model yet")
+        notes.append(f"bus {bus.id}: candidates evaluated one at a time ({why})")
+    collected = {bus.id: od.collect(bus, design) for bus in fast_buses}
+    # per candidate and bus: (status code, margin, where, figures) or an error
+    per: dict[str, dict] = {p.id: {} for p in parts}
+    methods = {p.id: "vectorized" if not slow_buses else "per-candidate" for p in parts}
+    errors: dict[str, PinlibError] = {}
+    with progress_bar(len(parts) * len(places), desc=f"candidates for {ref}", unit="part",
+                      enabled=progress) as bar:
+        for bus in fast_buses:
+            dev = next(d for b, d in places if b is bus)
+            lim = collected[bus.id][0]
+            groups: dict[tuple, list[Part]] = {}
+            for p in parts:
+                groups.setdefault(ob.structure(p, dev, bus, lim), []).append(p)
+            for group in groups.values():
+                try:
+                    rows = _batch_summaries(bus, dev, design, ref, group, collected[bus.id])
+                except PinlibError:
+                    rows = None
+                    notes.append(f"bus {bus.id}: a group of {len(group)} candidates fell back "
+                                 "to one-at-a-time evaluation (a value the physics refuses)")
+                if rows is None:
+                    for p in group:
+                        methods[p.id] = "per-candidate"
+                        try:
+                            res = _one(design, ref, p, places, {bus.id})[0]
+                        except PinlibError as err:
+                            errors.setdefault(p.id, err)
+                            continue
+                        st, m, w, f, ms = _summary_of([res], [(bus, dev)])
+                        per[p.id][bus.id] = (STATUSES.index(st), m, w, f[bus.id], ms)
+                else:
+                    for p, row in zip(group, rows, strict=True):
+                        per[p.id][bus.id] = row
+                bar.update(len(group))
+        if slow_buses:
+            for p in parts:
+                try:
+                    results = _one(design, ref, p, places, set(slow_buses))
+                except PinlibError as err:
+                    errors.setdefault(p.id, err)
+                    bar.update(len(slow_buses))
+                    continue
+                sub = [(b, d) for b, d in places if b.id in slow_buses]
+                for r, pl in zip(results, sub, strict=True):
+                    st, m, w, f, ms = _summary_of([r], [pl])
+                    per[p.id][r.id] = (STATUSES.index(st), m, w, f[r.id], ms)
+                bar.update(len(slow_buses))
+    out = []
+    for p in parts:
+        if p.id in errors:
+            out.append(_failed(p, current, methods[p.id], errors[p.id]))
+            continue
+        status, best, where, figures, margins = 0, None, None, {}, []
+        for bus, _ in places:
+            st, m, w, f, ms = per[p.id][bus.id]
+            status = max(status, st)
+            if m is not None and (best is None or m < best):
+                best, where = m, w
+            figures[bus.id] = f
+            margins.extend(ms)
+        if where is not None and "signal" in where:
+            where = _where(where)
+        out.append(Candidate(p.id, p.title, p.category, STATUSES[status], best, where, figures,
+                             p.id == current, methods[p.id], margins=tuple(sorted(margins))))
+    out.sort(key=Candidate.sort_key)
+    return Ranking(design.title, ref, current, _bus_rows(places), out, excluded,
+                   len(design.library.placeable()), notes)
+
+
+def _where(w: dict) -> dict:
+    """A batch check's place in the form engine results give (line checks of an
+    open-drain bus sit on their segment, with the signal as subject's first word)."""
+    return {"bus": w["bus"], "segment": w["segment"], "line": None, "id": w["id"],
+            "subject": w.get("signal")}

@@ -1,0 +1,82 @@
+"""``pinlib candidates DESIGN REF``: rank every library part that could stand in a position."""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+
+__all__ = ["add_parser", "run"]
+
+EXAMPLES = """\
+examples:
+  pinlib candidates workbooks/designs/demo-board.toml U4
+  pinlib candidates board.toml U4 --category memory --category sensor --top 5
+  pinlib candidates board.toml U1 --library ./parts --json > u1.json
+
+Every placeable part of the merged library (built-in, the design's library folders,
+--library) that can serve the position on every bus it sits on — the same pin
+functions, with drives the position allows — is evaluated in the design and ranked:
+pass before warn before fail, then by the worst margin of the checks the part can move
+(a tie broken by the next worst margin), with the check that sets it and the bus
+figures. On I2C and SMBus buses all candidates are evaluated in one numpy pass per
+group of like parts; positions on SPI or GPIO buses are evaluated one part at a time.
+* marks the part the design holds now.
+
+exit status: 0 at least one candidate passes or warns, 1 none does, 2 the design, the
+library or the reference is not valid.
+"""
+
+
+def add_parser(sub) -> None:
+    from pinlib.library.schema import CATEGORIES
+
+    p = sub.add_parser(
+        "candidates",
+        help="rank the library parts that could stand in a position",
+        description="Evaluate every library part that could serve a device's position "
+                    "(same pin functions, allowed drives) in the design, and rank them by "
+                    "status and worst margin.",
+        epilog=EXAMPLES,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    p.add_argument("design", metavar="DESIGN", help="the design file (.toml)")
+    p.add_argument("ref", metavar="REF", help="the reference designator of the position (U4)")
+    p.add_argument("--category", metavar="CAT", action="append", choices=CATEGORIES,
+                   default=[], help="only parts of this category (repeatable): "
+                                    + ", ".join(CATEGORIES))
+    p.add_argument("--top", metavar="N", type=_positive, default=None,
+                   help="show the best N (text: 20 unless given; JSON: all unless given)")
+    p.add_argument("--json", action="store_true",
+                   help="print the ranking as JSON (format pinlib.candidates/1)")
+    p.add_argument("--library", metavar="DIR", action="append", default=[],
+                   help="a team library folder (repeatable; takes precedence over the design's)")
+    p.add_argument("--progress", action="store_true",
+                   help="show a progress bar even when standard error is not a terminal")
+    p.set_defaults(run=run)
+
+
+def _positive(text: str) -> int:
+    try:
+        n = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"not a whole number: {text!r}") from None
+    if n < 1:
+        raise argparse.ArgumentTypeError("must be at least 1")
+    return n
+
+
+def run(args) -> int:
+    from pinlib.candidates import rank_candidates
+    from pinlib.design import load_design
+
+    design = load_design(args.design, library_folders=args.library)
+    ranking = rank_candidates(design, args.ref, categories=args.category or None,
+                              progress=True if args.progress else None)
+    if args.json:
+        json.dump(ranking.to_json(args.top), sys.stdout, indent=2, ensure_ascii=False)
+        sys.stdout.write("\n")
+    else:
+        sys.stdout.write(ranking.format_text(args.top or 20))
+    good = any(c.status in ("pass", "warn") for c in ranking.candidates)
+    return 0 if good else 1

@@ -1,0 +1,230 @@
+"""Tests of the candidate ranking (pinlib.candidates) and ``pinlib candidates``: the
+vectorized ranking against a per-candidate evaluation with the engines, on the whole
+built-in library."""
+
+from __future__ import annotations
+
+import json
+import math
+import sys
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from pinlib import candidates as cand
+from pinlib.cli import main
+from pinlib.design import load_design
+from pinlib.errors import DesignError, InputError
+from pinlib.library.loader import Library, load_library
+from pinlib.library.values import Sourced
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"
+PARTS = Path(__file__).parent / "data" / "parts"
+
+sys.path.insert(0, str(Path(__file__).parent))
+from test_whatif import BUSES, HEAD  # noqa: E402  (the invented buses of the what-if tests)
+
+
+def assert_same_ranking(fast: cand.Ranking, slow: cand.Ranking) -> None:
+    assert [c.part for c in fast.candidates] == [c.part for c in slow.candidates]
+    assert fast.excluded == slow.excluded
+    for a, b in zip(fast.candidates, slow.candidates, strict=True):
+        assert a.status == b.status, a.part
+        if b.worst_margin is None:
+            assert a.worst_margin is None, a.part
+        elif math.isinf(b.worst_margin):
+            assert a.worst_margin == b.worst_margin, a.part
+        else:
+            assert a.worst_margin == pytest.approx(b.worst_margin, rel=1e-9), a.part
+        assert (a.worst_check or {}).get("id") == (b.worst_check or {}).get("id"), a.part
+        assert len(a.margins) == len(b.margins), a.part
+        assert np.allclose(a.margins, b.margins, rtol=1e-9, atol=0.0), a.part
+        assert a.current == b.current
+        for bus, figs in b.figures.items():
+            for name, (value, unit) in figs.items():
+                got = a.figures[bus][name]
+                assert got[1] == unit
+                assert (got[0] is None) == (value is None), (a.part, name)
+                if value is not None:
+                    assert got[0] == pytest.approx(value, rel=1e-9), (a.part, name)
+
+
+# --------------------------------------------------------------------------- vectorized == slow
+
+
+DEMO_DESIGN = load_design(DEMO)
+DEMO_REFS = sorted({d.ref for b in DEMO_DESIGN.buses for d in b.devices})
+
+
+@pytest.mark.parametrize("ref", DEMO_REFS)
+def test_vectorized_ranking_equals_per_candidate_on_the_builtin_library(ref):
+    # every position of the demo design, every placeable part of the built-in library
+    fast = cand.rank_candidates(DEMO_DESIGN, ref)
+    slow = cand.rank_candidates_slow(DEMO_DESIGN, ref)
+    assert fast.candidates, ref
+    assert_same_ranking(fast, slow)
+    assert fast.library_size == len(load_library().placeable())
+
+
+def test_vectorized_ranking_equals_per_candidate_on_every_engine_branch(tmp_path):
+    # invented buses: a repeater, a pass-transistor translator, own rails, part pull-ups,
+    # series resistors, a switched device, SMBus; candidates from the built-in library
+    # and the test parts
+    path = tmp_path / "d.toml"
+    path.write_text(HEAD + BUSES.format(vtol="5 %", ptol="1 %", ctol="10 %", ltol="5 %"),
+                    encoding="utf-8")
+    d = load_design(path, library_folders=[PARTS])
+    for ref in ("U1", "U2", "U3", "U4", "U5", "U6", "J1", "U16", "U23", "U21", "U32"):
+        fast = cand.rank_candidates(d, ref)
+        assert fast.candidates and all(c.method == "vectorized" for c in fast.candidates)
+        assert_same_ranking(fast, cand.rank_candidates_slow(d, ref))
+    # a bridging part is evaluated one candidate at a time, each bus once
+    for ref in ("Q1", "U15"):
+        fast = cand.rank_candidates(d, ref)
+        assert all(c.method == "per-candidate" for c in fast.candidates)
+        assert len(fast.buses) == 1 and len(fast.notes) == 1
+        assert_same_ranking(fast, cand.rank_candidates_slow(d, ref))
+
+
+def _variants(n: int, seed: int = 7) -> Library:
+    """The built-in library plus ``n`` invented variants of its I2C parts, each pin's
+    capacitance, leakage, sink point and thresholds drawn at random."""
+    lib = load_library()
+    rng = np.random.default_rng(seed)
+    base = [p for p in lib.placeable().values()
+            if {"i2c-sda", "i2c-scl"} <= p.functions() and not p.sides]
+    parts = dict(lib.parts)
+    for i in range(n):
+        b = base[i % len(base)]
+        pins = {}
+        for name, pin in b.pins.items():
+            upd = {"c_in": Sourced(float(rng.uniform(2e-12, 20e-12)), "F", "invented"),
+                   "leakage": Sourced(float(rng.uniform(0.1e-6, 10e-6)), "A", "invented")}
+            if pin.drive == "open-drain":
+                upd["i_ol"] = Sourced(float(rng.uniform(1e-3, 8e-3)), "A", "invented")
+            pins[name] = pin.model_copy(update=upd)
+        pid = f"variant-{i:04d}"
+        parts[pid] = b.model_copy(update={"id": pid, "pins": pins})
+    return Library(parts=parts, files=lib.files, overrides=lib.overrides, problems=[],
+                   folders=lib.folders)
+
+
+def test_vectorized_ranking_equals_per_candidate_on_invented_variants():
+    d = load_design(DEMO, library=_variants(150))
+    for ref in ("U4", "U9", "U30"):
+        fast = cand.rank_candidates(d, ref)
+        assert len(fast.candidates) > 100
+        assert all(c.method == "vectorized" for c in fast.candidates)
+        assert_same_ranking(fast, cand.rank_candidates_slow(d, ref))
+
+
+# --------------------------------------------------------------------------- the ranking
+
+
+def test_ranking_order_and_the_current_part():
+    r = cand.rank_candidates(DEMO_DESIGN, "U4")
+    assert r.current == "eeprom-i2c"
+    assert r.candidate("eeprom-i2c").current
+    ranks = [cand._RANK[c.status] for c in r.candidates]
+    assert ranks == sorted(ranks)                # pass before warn before fail
+    # a part that cannot serve an I2C position is left out and counted
+    ids = {c.part for c in r.candidates}
+    assert "nor-flash-spi" not in ids and "ribbon-cable" not in ids
+    assert r.excluded > 0
+    # a 5 V-only part fails the 3.3 V rail's supply range, a 1.8 V part the translator
+    # side's levels
+    assert r.candidate("mcu-5v").status == "fail"
+    assert r.candidate("mcu-5v").worst_check["id"] == "supply-range"
+    # the figures that matter for the bus
+    figs = r.candidate("eeprom-i2c").figures["sensors"]
+    assert set(figs) == {"bus_capacitance", "rise_time", "v_ol", "pullup_resistor"}
+    assert figs["bus_capacitance"][1] == "F"
+
+
+def test_ranking_leaves_fixed_checks_out_of_the_worst_margin():
+    r = cand.rank_candidates(DEMO_DESIGN, "U4")
+    for c in r.candidates:
+        assert c.worst_check["id"] not in cand.FIXED_CHECKS
+
+
+def test_spi_positions_are_evaluated_one_at_a_time():
+    r = cand.rank_candidates(DEMO_DESIGN, "U7")
+    assert r.candidates and all(c.method == "per-candidate" for c in r.candidates)
+    assert any("one at a time" in n for n in r.notes)
+
+
+def test_categories_and_errors():
+    r = cand.rank_candidates(DEMO_DESIGN, "U4", categories=["memory", "clock"])
+    assert {c.category for c in r.candidates} <= {"memory", "clock"}
+    assert {c.part for c in r.candidates} == {"eeprom-i2c", "rtc-i2c"}
+    with pytest.raises(InputError, match="unknown category"):
+        cand.rank_candidates(DEMO_DESIGN, "U4", categories=["toaster"])
+    with pytest.raises(DesignError, match="no device with this reference"):
+        cand.rank_candidates(DEMO_DESIGN, "U99")
+
+
+def test_progress_callback():
+    seen = []
+    r = cand.rank_candidates(DEMO_DESIGN, "U4", progress=lambda done, total: seen.append(
+        (done, total)))
+    assert seen and seen[-1] == (len(r.candidates), len(r.candidates))
+
+
+# --------------------------------------------------------------------------- command line
+
+
+def test_cli_text_and_json(capsys):
+    assert main(["candidates", str(DEMO), "U4"]) == 0
+    out = capsys.readouterr().out
+    assert "position U4, now eeprom-i2c" in out
+    assert "eeprom-i2c *" in out
+    assert main(["candidates", str(DEMO), "U4", "--json", "--top", "3"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    assert data["format"] == "pinlib.candidates/1"
+    assert data["ref"] == "U4" and len(data["candidates"]) == 3
+    assert data["count"] > 3
+    first = data["candidates"][0]
+    assert {"part", "status", "worst_margin", "worst_check", "figures"} <= set(first)
+    assert main(["candidates", str(DEMO), "U4", "--category", "memory", "--json"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    assert [c["part"] for c in data["candidates"]] == ["eeprom-i2c"]
+
+
+def test_cli_exit_codes(tmp_path, capsys):
+    assert main(["candidates", str(DEMO), "U99"]) == 2
+    assert "no device with this reference" in capsys.readouterr().err
+    with pytest.raises(SystemExit) as exc:
+        main(["candidates", str(DEMO), "U4", "--category", "toaster"])
+    assert exc.value.code == 2
+    with pytest.raises(SystemExit) as exc:
+        main(["candidates", str(DEMO), "U4", "--top", "0"])
+    assert exc.value.code == 2
+    # a bus that fails whatever stands in the position: 1 nF on it
+    body = HEAD + """
+[[bus]]
+id = "heavy"
+protocol = "i2c"
+mode = "fast"
+supply = "3.3 V"
+extra_capacitance = "1 nF"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "eeprom-i2c" },
+]
+"""
+    path = tmp_path / "heavy.toml"
+    path.write_text(body, encoding="utf-8")
+    assert main(["candidates", str(path), "U2"]) == 1
+    assert "FAIL" in capsys.readouterr().out
+
+
+def test_cli_help(capsys):
+    with pytest.raises(SystemExit) as exc:
+        main(["candidates", "--help"])
+    assert exc.value.code == 0
+    out = capsys.readouterr().out
+    assert "pinlib candidates workbooks/designs/demo-board.toml U4" in out
+    for opt in ("--category", "--top", "--json", "--library"):
+        assert opt in out

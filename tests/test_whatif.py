@@ -1,0 +1,451 @@
+"""Tests of corners and Monte Carlo (pinlib.whatif) and of ``pinlib check --corners
+--monte-carlo``: against the engine's own results, a closed-form probability, and
+published confidence intervals."""
+
+from __future__ import annotations
+
+import json
+import math
+import re
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from pinlib import whatif
+from pinlib.check import check_design
+from pinlib.cli import main
+from pinlib.design import load_design
+from pinlib.errors import InputError
+from pinlib.physics.rc import RISE_30_70
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"
+PARTS = Path(__file__).parent / "data" / "parts"
+
+HEAD = """format = "pinlib.design/1"
+title = "what-if test"
+"""
+
+# Invented buses that exercise every branch of the open-drain engine: parts' own and
+# internal pull-ups, series resistors, a device on its own rail, a switched device, a
+# slope-controlled output, a connector, a cable; a repeater with a static offset; a
+# pass-transistor translator with auto pull-ups on both sides; an SMBus link.
+BUSES = """
+[[bus]]
+id = "mixed"
+protocol = "i2c"
+mode = "fast"
+supply = "3.3 V"
+supply_tolerance = "{vtol}"
+pullup = "auto"
+pullup_tolerance = "{ptol}"
+capacitance_tolerance = "{ctol}"
+length_tolerance = "{ltol}"
+trace = {{ length = "12 cm", capacitance = "0.9 pF/cm" }}
+cables = [{{ part = "t-ribbon", length = "0.3 m" }}]
+extra_capacitance = "8 pF"
+devices = [
+  {{ ref = "U1", part = "t-ctrl-3v3", role = "controller", internal_pullups = true }},
+  {{ ref = "U2", part = "t-target", series_resistor = "100 Ω", capacitance_tolerance = "{ctol}" }},
+  {{ ref = "U3", part = "t-module-4k7" }},
+  {{ ref = "U4", part = "t-sensor-1v8-tolerant", supply = "1.8 V" }},
+  {{ ref = "U5", part = "t-target", switched = true }},
+  {{ ref = "U6", part = "t-target-slope" }},
+  {{ ref = "J1", part = "t-connector" }},
+  {{ ref = "U7", part = "t-target-bare" }},
+]
+
+[[bus]]
+id = "rep"
+protocol = "i2c"
+mode = "fast"
+
+[[bus.segment]]
+id = "near"
+supply = "3.3 V"
+supply_tolerance = "{vtol}"
+pullup_tolerance = "{ptol}"
+devices = [
+  {{ ref = "U11", part = "t-ctrl-3v3", role = "controller" }},
+  {{ ref = "U15", part = "t-repeater", side = "a" }},
+]
+
+[[bus.segment]]
+id = "far"
+supply = "3.3 V"
+supply_tolerance = "{vtol}"
+pullup_tolerance = "{ptol}"
+devices = [
+  {{ ref = "U15", part = "t-repeater", side = "b" }},
+  {{ ref = "U16", part = "t-target" }},
+]
+
+[[bus]]
+id = "fet"
+protocol = "i2c"
+mode = "fast-plus"
+
+[[bus.segment]]
+id = "high"
+supply = "3.3 V"
+supply_tolerance = "{vtol}"
+pullup = "auto"
+pullup_tolerance = "{ptol}"
+devices = [
+  {{ ref = "U21", part = "t-ctrl-3v3", role = "controller" }},
+  {{ ref = "Q1", part = "t-fet-translator", side = "b" }},
+]
+
+[[bus.segment]]
+id = "low"
+supply = "1.8 V"
+supply_tolerance = "{vtol}"
+pullup = "auto"
+pullup_tolerance = "{ptol}"
+devices = [
+  {{ ref = "Q1", part = "t-fet-translator", side = "a" }},
+  {{ ref = "U23", part = "t-sensor-1v8" }},
+]
+
+[[bus]]
+id = "sm"
+protocol = "smbus"
+mode = "100k"
+supply = "3.3 V"
+supply_tolerance = "{vtol}"
+pullup = "10 kΩ"
+pullup_tolerance = "{ptol}"
+extra_capacitance = "50 pF"
+capacitance_tolerance = "{ctol}"
+devices = [
+  {{ ref = "U31", part = "t-ctrl-3v3", role = "controller" }},
+  {{ ref = "U32", part = "t-gauge-smbus" }},
+]
+"""
+
+
+def design(tmp_path, body: str, name: str = "d.toml"):
+    path = tmp_path / name
+    path.write_text(HEAD + body, encoding="utf-8")
+    return load_design(path, library_folders=[PARTS])
+
+
+def tolerant(tmp_path, vtol="5 %", ptol="1 %", ctol="10 %", ltol="5 %", extra=""):
+    return design(tmp_path, extra + BUSES.format(vtol=vtol, ptol=ptol, ctol=ctol, ltol=ltol))
+
+
+def engine_checks(result, bus_id):
+    b = result.bus(bus_id)
+    groups = b.segments or [b]
+    return [c for g in groups for c in g.checks]
+
+
+# --------------------------------------------------------------------------- Wilson interval
+
+
+# from memory: R. G. Newcombe, Statistics in Medicine 17 (1998) 857-872, table I, method 3
+# (score interval without continuity correction), printed to 4 decimals; not confirmed
+# against a stored copy, so scipy's implementation below is the second reference
+NEWCOMBE_TABLE_I = [((81, 263), (0.2553, 0.3662)), ((15, 148), (0.0624, 0.1605)),
+                    ((0, 20), (0.0000, 0.1611)), ((1, 29), (0.0061, 0.1718))]
+
+
+@pytest.mark.parametrize("counts,interval", NEWCOMBE_TABLE_I)
+def test_wilson_interval_published_examples(counts, interval):
+    lo, hi = whatif.wilson_interval(*counts)
+    assert lo == pytest.approx(interval[0], abs=5e-5)
+    assert hi == pytest.approx(interval[1], abs=5e-5)
+
+
+@pytest.mark.parametrize("k,n", [(0, 1), (3, 10), (9990, 10000), (100000, 100000)])
+def test_wilson_interval_matches_scipy(k, n):
+    from scipy.stats import binomtest
+
+    ci = binomtest(k, n).proportion_ci(confidence_level=0.95, method="wilson")
+    lo, hi = whatif.wilson_interval(k, n)
+    # scipy's score interval, an independent implementation of Wilson (1927)
+    assert lo == pytest.approx(ci.low, abs=1e-12)
+    assert hi == pytest.approx(ci.high, abs=1e-12)
+
+
+def test_wilson_interval_refuses_non_proportions():
+    with pytest.raises(InputError, match="not a proportion"):
+        whatif.wilson_interval(5, 4)
+    with pytest.raises(InputError, match="confidence"):
+        whatif.wilson_interval(1, 4, confidence=1.5)
+
+
+# --------------------------------------------------------------------------- zero tolerance
+
+
+def _same(a, b) -> bool:
+    return (a == b) or (a is not None and b is not None and math.isnan(a) and math.isnan(b))
+
+
+def test_zero_tolerances_every_sample_is_the_nominal_result(tmp_path):
+    d = tolerant(tmp_path, vtol="0 %", ptol="0 %", ctol="0 %", ltol="0 %")
+    mc = whatif.monte_carlo(d, 64, seed=5)
+    assert mc.parameters == []
+    nominal = check_design(d)
+    for bus in d.buses:
+        engine = engine_checks(nominal, bus.id)
+        mine = [c for c in mc.checks if c.bus == bus.id]
+        # the vectorized model reproduces every check of the engine, in its order
+        assert [c.id for c in mine] == [c.id for c in engine]
+        for e, m in zip(engine, mine, strict=True):
+            if e.margin is None:      # a yes/no check
+                assert m.margins is None
+                assert m.passes.passes == (64 if e.status != "fail" else 0)
+                continue
+            # every board equals the engine's result for this check, value and margin
+            assert all(_same(float(x), e.margin) for x in m.margins), (m.name, e.margin)
+            assert all(_same(float(x), e.value) for x in m.values), (m.name, e.value)
+            assert m.passes.passes == (64 if e.status != "fail" else 0)
+            assert not m.varies
+
+
+def test_zero_tolerances_on_the_demo_design(tmp_path):
+    text = DEMO.read_text(encoding="utf-8")
+    text = re.sub(r'\n(supply_tolerance|pullup_tolerance) = "[^"]*"', "", text)
+    text = text.replace("[[bus.segment]]\n",
+                        '[[bus.segment]]\npullup_tolerance = "0 %"\nsupply_tolerance = "0 %"\n')
+    text = text.replace('protocol = "smbus"\n', 'protocol = "smbus"\npullup_tolerance = "0 %"\n')
+    path = tmp_path / "zero.toml"
+    path.write_text(text, encoding="utf-8")
+    d = load_design(path)
+    mc = whatif.monte_carlo(d, 16, seed=1)
+    nominal = check_design(d)
+    for bus in ("sensors", "power"):
+        mine = [c for c in mc.checks if c.bus == bus]
+        for e, m in zip(engine_checks(nominal, bus), mine, strict=True):
+            assert e.id == m.id
+            if e.margin is not None:
+                assert np.all(m.margins == e.margin), m.name
+    # the SPI buses are not sampled, and the result says so
+    assert any("bus flash (spi): not sampled" in n for n in mc.notes)
+    assert set(mc.buses) == {"sensors", "power"}
+
+
+# --------------------------------------------------------------------------- the RC rise
+
+
+RC_BUS = """
+[[bus]]
+id = "rc"
+protocol = "i2c"
+mode = "fast"
+supply = "3.3 V"
+supply_tolerance = "0 %"
+pullup = "9.1 kΩ"
+pullup_tolerance = "10 %"
+extra_capacitance = "20 pF"
+capacitance_tolerance = "40 %"
+devices = [
+  { ref = "U1", part = "t-ctrl-3v3", role = "controller" },
+  { ref = "U2", part = "t-target" },
+]
+"""
+
+
+def p_product_below(t, a, b, c, d):
+    """P[X·Y <= t] for independent X ~ U[a, b], Y ~ U[c, d] (all positive).
+
+    derived from integrating the region under the hyperbola x·y = t over the rectangle:
+    for x <= t/d every y counts (height d − c); for t/d < x < t/c the part below t/x
+    (height t/x − c); beyond t/c none.  With x1 = clip(t/d, a, b), x2 = clip(t/c, a, b):
+    P = [(d − c)(x1 − a) + t·ln(x2/x1) − c·(x2 − x1)] / ((b − a)(d − c)).
+    """
+    x1 = min(max(t / d, a), b)
+    x2 = min(max(t / c, a), b)
+    area = (d - c) * (x1 - a) + t * math.log(x2 / x1) - c * (x2 - x1)
+    return area / ((b - a) * (d - c))
+
+
+def test_rc_rise_pass_fraction_matches_the_analytic_probability(tmp_path):
+    d = design(tmp_path, RC_BUS)
+    n = 40_000
+    mc = whatif.monte_carlo(d, n, seed=20261201)
+    rise = mc.find("rc", "rise-time", "SDA")
+    # Rp ~ U[9.1 kΩ·0.9, 9.1 kΩ·1.1]; Cb = 20 pF of pins (10 pF each, t-ctrl-3v3 and
+    # t-target) + 20 pF·(1 ± 40 %) extra, so Cb ~ U[32 pF, 48 pF]; the check passes when
+    # ln(7/3)·Rp·Cb <= 300 ns (UM10204 rev. 6 §7.1 and table 10, Fast-mode tr max)
+    k = math.log(7.0 / 3.0)
+    assert RISE_30_70 == pytest.approx(k, rel=1e-12)   # published: UM10204 rev. 6 §7.1, 0.8473
+    p = p_product_below(300e-9 / k, 9.1e3 * 0.9, 9.1e3 * 1.1, 32e-12, 48e-12)
+    assert 0.2 < p < 0.8          # the case is not a trivial one
+    lo, hi = rise.passes.interval
+    assert lo <= p <= hi, (rise.passes, p)
+    # each board passes exactly when its own rise time is within the limit
+    assert rise.passes.passes == int(np.count_nonzero(rise.values <= 300e-9))
+    # and the margin follows the pull-up and the capacitance, not the SCL resistor
+    names = [name for name, _ in rise.sensitivity]
+    assert set(names[:2]) == {"rc SDA pull-up", "rc board capacitance"}
+    assert all(c < 0 for _, c in rise.sensitivity[:2])   # larger Rp or Cb: less margin
+
+
+def test_seeded_runs_are_reproducible(tmp_path):
+    d = tolerant(tmp_path)
+    a = whatif.monte_carlo(d, 3000, seed=42, chunk=1000)
+    b = whatif.monte_carlo(d, 3000, seed=42, chunk=1000)
+    c = whatif.monte_carlo(d, 3000, seed=43, chunk=1000)
+    assert a.seed == 42
+    assert np.array_equal(a.draws, b.draws)
+    assert not np.array_equal(a.draws, c.draws)
+    for x, y in zip(a.checks, b.checks, strict=True):
+        assert x.name == y.name and x.passes == y.passes
+        if x.margins is not None:
+            assert np.array_equal(x.margins, y.margins)
+    # without a seed one is drawn and reported: running with it repeats the run
+    free = whatif.monte_carlo(d, 500)
+    again = whatif.monte_carlo(d, 500, seed=free.seed)
+    assert np.array_equal(free.draws, again.draws)
+
+
+def test_normal_draws_put_the_tolerance_at_three_sigma(tmp_path):
+    d = tolerant(tmp_path, extra='distribution = "normal"\n')
+    mc = whatif.monte_carlo(d, 20_000, seed=3)
+    assert mc.distribution == "normal"
+    # derived from tolerance = 3σ: the unit deviations have σ = 1/3
+    assert np.std(mc.draws, axis=0) == pytest.approx(np.full(mc.draws.shape[1], 1 / 3), rel=0.03)
+    assert np.abs(mc.draws).max() > 1.0    # beyond the tolerance now and then
+
+
+def test_monte_carlo_refuses_no_samples(tmp_path):
+    d = design(tmp_path, RC_BUS)
+    with pytest.raises(InputError, match="too few samples"):
+        whatif.monte_carlo(d, 0)
+
+
+def test_progress_callback_sees_every_sample(tmp_path):
+    d = design(tmp_path, RC_BUS)
+    seen = []
+    whatif.monte_carlo(d, 2500, seed=1, chunk=1000, progress=lambda done, total: seen.append(
+        (done, total)))
+    assert seen == [(1000, 2500), (2000, 2500), (2500, 2500)]
+
+
+def test_progress_bar_on_request_and_silent_otherwise(tmp_path, capsys):
+    d = design(tmp_path, RC_BUS)
+    whatif.monte_carlo(d, 2000, seed=1, chunk=500)
+    assert capsys.readouterr().err == ""        # not a terminal: no bar
+    whatif.monte_carlo(d, 2000, seed=1, chunk=500, progress=True)
+    err = capsys.readouterr().err
+    assert "Monte Carlo" in err and "/2000" in err   # a tqdm bar, as asked
+
+
+def test_parameters_of_a_design(tmp_path):
+    d = tolerant(tmp_path)
+    names = {p.name: p for p in whatif.parameters(d)}
+    # one 3.3 V rail for every bus, the 1.8 V rails of U4 (own rail) and the low segment
+    assert names["rail 3.3 V"].tolerance == pytest.approx(0.05)
+    assert "rail 1.8 V" in names
+    for want in ("mixed SDA pull-up", "mixed SCL pull-up", "U3 SDA on-part pull-up",
+                 "U1 SDA internal pull-up", "U2 SDA series resistor", "U2 pin capacitance",
+                 "mixed board capacitance", "mixed trace and cable length",
+                 "fet/high SDA pull-up", "sm board capacitance"):
+        assert want in names, want
+    assert names["mixed trace and cable length"].nominal == pytest.approx(0.42)
+
+
+# --------------------------------------------------------------------------- corners
+
+
+def test_corners_find_the_known_worst_corner(tmp_path):
+    d = tolerant(tmp_path)
+    res = whatif.corners(d)
+    nominal = check_design(d)
+    rise = res.find("mixed", "rise-time", "SDA")
+    ends = {n: e for n, e, _ in rise.corner}
+    # derived from tr = k·Rp·Cb: the largest pull-up and every capacitance at its top;
+    # the 30-70 % factor does not depend on the rail, so the rail is not in the corner
+    assert ends["mixed SDA pull-up"] == "+"
+    assert ends["U3 SDA on-part pull-up"] == "+"
+    assert ends["mixed board capacitance"] == "+"
+    assert ends["mixed trace and cable length"] == "+"
+    assert ends["U2 pin capacitance"] == "+"
+    assert "rail 3.3 V" not in ends and "mixed SCL pull-up" not in ends
+    # the engine takes the same corner: the margins agree
+    engine = next(c for c in engine_checks(nominal, "mixed") if c.id == "rise-time")
+    assert rise.margin == pytest.approx(engine.margin, rel=1e-9)
+    # sink current: derived from I = VDD/(Rp + Rs + Ron): the rail high, the pull-ups low
+    sink = res.find("sm", "sink-current", "SDA")
+    assert [(n, e) for n, e, _ in sink.corner][:2] in (
+        [("rail 3.3 V", "+"), ("sm SDA pull-up", "−")],
+        [("sm SDA pull-up", "−"), ("rail 3.3 V", "+")])
+    engine = next(c for c in engine_checks(nominal, "sm") if c.id == "sink-current")
+    assert sink.margin == pytest.approx(engine.margin, rel=1e-9)
+    # SMBus rise: derived from k = ln((VDD − 0.65)/(VDD − 1.5)), larger at a lower rail
+    smb = res.find("sm", "rise-time", "SDA")
+    assert dict((n, e) for n, e, _ in smb.corner)["rail 3.3 V"] == "−"
+    # every parameter's gain is what flipping it gives back: positive at the worst corner
+    assert all(g > 0 for _, _, g in rise.corner)
+
+
+def test_corners_screening_agrees_with_every_vertex(tmp_path):
+    d = tolerant(tmp_path)
+    full = whatif.corners(d)
+    screened = whatif.corners(d, exhaustive_limit=0)
+    assert "screened" in screened.methods["mixed"]
+    for a, b in zip(full.checks, screened.checks, strict=True):
+        assert a.name == b.name
+        if a.margin is not None:
+            assert b.margin == pytest.approx(a.margin, rel=1e-9, abs=1e-12), a.name
+
+
+def test_corners_without_tolerances(tmp_path):
+    d = design(tmp_path, RC_BUS.replace('"10 %"', '"0 %"').replace('"40 %"', '"0 %"'))
+    res = whatif.corners(d)
+    assert res.methods["rc"] == "no toleranced parameter"
+    assert all(not c.corner for c in res.checks)
+    engine = engine_checks(check_design(d), "rc")
+    for e, c in zip(engine, res.checks, strict=True):
+        assert c.status == e.status
+
+
+# --------------------------------------------------------------------------- command line
+
+
+def test_cli_monte_carlo_json_is_reproducible(capsys):
+    code = main(["check", str(DEMO), "--monte-carlo", "300", "--seed", "9", "--json"])
+    first = json.loads(capsys.readouterr().out)
+    assert code == 0
+    mc = first["monte_carlo"]
+    assert mc["format"] == "pinlib.montecarlo/1"
+    assert mc["samples"] == 300 and mc["seed"] == 9
+    assert mc["interval"] == "Wilson score interval" and mc["confidence"] == 0.95
+    assert first["buses"] and first["format"] == "pinlib.result/1"   # the result is intact
+    assert main(["check", str(DEMO), "--monte-carlo", "300", "--seed", "9", "--json"]) == 0
+    assert json.loads(capsys.readouterr().out)["monte_carlo"] == mc
+
+
+def test_cli_corners_and_text(capsys):
+    assert main(["check", str(DEMO), "--corners", "--monte-carlo", "200", "--seed", "1"]) == 0
+    out = capsys.readouterr().out
+    assert "Corners:" in out and "Monte Carlo: 200 boards" in out
+    assert "Wilson score interval" in out
+    assert main(["check", str(DEMO), "--corners", "--json"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    assert data["corners"]["format"] == "pinlib.corners/1"
+    assert "monte_carlo" not in data
+
+
+def test_cli_bad_options(capsys):
+    assert main(["check", str(DEMO), "--seed", "4"]) == 2
+    assert "--monte-carlo" in capsys.readouterr().err
+    with pytest.raises(SystemExit) as exc:
+        main(["check", str(DEMO), "--monte-carlo", "0"])
+    assert exc.value.code == 2
+    with pytest.raises(SystemExit) as exc:
+        main(["check", str(DEMO), "--monte-carlo", "10", "--seed", "-1"])
+    assert exc.value.code == 2
+
+
+def test_cli_check_help_lists_the_new_options(capsys):
+    with pytest.raises(SystemExit) as exc:
+        main(["check", "--help"])
+    assert exc.value.code == 0
+    out = capsys.readouterr().out
+    for opt in ("--monte-carlo", "--seed", "--corners", "--save", "--threshold", "--json"):
+        assert opt in out
+    assert "pinlib check board.toml --monte-carlo 100000 --seed 7" in out
