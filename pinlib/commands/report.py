@@ -1,0 +1,171 @@
+"""``pinlib report DESIGN (--html FILE | --md FILE)``: write a design-review report.
+
+The design is evaluated (as ``pinlib check`` does), compared with its saved snapshot
+when there is one, and written as a self-contained HTML page or as Markdown with its
+charts as SVG files in a folder beside it (:mod:`pinlib.review`).  Every file is
+written atomically: a reader sees the old report or the new one, never half of one.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+__all__ = ["add_parser", "run", "chart_dir_for", "MONTE_CARLO_MODULES"]
+
+EXAMPLES = """\
+examples:
+  pinlib report workbooks/designs/demo-board.toml --html demo-review.html
+  pinlib report board.toml --md review/board.md      # charts in review/board-charts/
+  pinlib report board.toml --html review.html --library ./parts
+  pinlib report board.toml --html review.html --monte-carlo 10000 --seed 1
+
+The report holds the caution, every bus's figures and checks with the source of each
+limit, charts (edge time against load, pull-up windows, receiver waveforms, SPI timing
+budgets; Monte Carlo histograms when run), every part with the provenance of each value,
+and the change list against the snapshot saved by `pinlib check DESIGN --save`.
+The HTML page needs no network and no script; the Markdown links its charts as SVG
+files in <name>-charts/ beside the .md (so repository viewers show them).
+
+exit status: 0 pass or warn, 1 a check fails (the report is written either way),
+2 the design or library is not valid, or the report cannot be written.
+"""
+
+#: Where the Monte Carlo engine is looked for (see :func:`_monte_carlo`).
+MONTE_CARLO_MODULES = ("pinlib.whatif",)
+
+
+def _positive_int(text: str) -> int:
+    try:
+        n = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"not a whole number: {text!r}") from None
+    if n < 1:
+        raise argparse.ArgumentTypeError(f"at least 1 sample is needed (got {n})")
+    return n
+
+
+def threshold_type(text):
+    from pinlib.commands.swap import threshold_type as parse
+
+    return parse(text)
+
+
+def add_parser(sub) -> None:
+    p = sub.add_parser(
+        "report",
+        help="write a design-review report (HTML with charts, or Markdown)",
+        description="Evaluate a design and write a self-contained design-review report: the "
+                    "caution, figures and checks with their sources, charts, the parts with "
+                    "the provenance of their values, and the changes against the saved "
+                    "snapshot.",
+        epilog=EXAMPLES,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    p.add_argument("design", metavar="DESIGN", help="the design file (.toml)")
+    out = p.add_mutually_exclusive_group(required=True)
+    out.add_argument("--html", metavar="FILE", help="write one self-contained HTML page")
+    out.add_argument("--md", metavar="FILE",
+                     help="write Markdown; its charts go to FILE's name + '-charts/' beside it")
+    p.add_argument("--library", metavar="DIR", action="append", default=[],
+                   help="a team library folder (repeatable; takes precedence over the design's)")
+    p.add_argument("--threshold", metavar="PCT", type=threshold_type, default=None,
+                   help="list figures that moved more than this against the saved snapshot "
+                        "(default 5%%)")
+    p.add_argument("--monte-carlo", metavar="N", type=_positive_int, default=None,
+                   dest="monte_carlo",
+                   help="also run N Monte Carlo boards and show a histogram per check")
+    p.add_argument("--seed", metavar="S", type=int, default=None,
+                   help="seed of the Monte Carlo run (reproducible runs)")
+    p.set_defaults(run=run)
+
+
+def chart_dir_for(md_path: str | Path) -> str:
+    """The folder name, relative to the ``.md``, that holds its charts:
+    ``review/board.md`` -> ``board-charts``."""
+    return f"{Path(md_path).stem}-charts"
+
+
+def _monte_carlo(design, n: int, seed: int | None):
+    """Run the Monte Carlo engine when it is installed.
+
+    :func:`pinlib.whatif.monte_carlo` (the first of :data:`MONTE_CARLO_MODULES` that
+    imports and has ``monte_carlo(design, n, *, seed=None)``); it shows progress on a
+    terminal.  Without it the option is refused with a message (exit 2).
+    """
+    import importlib
+
+    from pinlib.errors import InputError
+
+    for name in MONTE_CARLO_MODULES:
+        try:
+            module = importlib.import_module(name)
+        except ModuleNotFoundError as exc:
+            if exc.name != name:
+                raise
+            continue
+        run = getattr(module, "monte_carlo", None)
+        if run is None:
+            continue
+        return run(design, n, seed=seed)
+    raise InputError("the Monte Carlo engine is not available in this pinlib",
+                     field="--monte-carlo", value=n,
+                     hint="write the report without --monte-carlo")
+
+
+def run(args) -> int:
+    from pinlib.check import check_design
+    from pinlib.compare import DEFAULT_THRESHOLD, compare_with_snapshot
+    from pinlib.design import load_design
+    from pinlib.errors import InputError
+    from pinlib.review import build_review
+    from pinlib.tomlfile import atomic_write
+
+    if args.seed is not None and args.monte_carlo is None:
+        raise InputError("--seed is for a Monte Carlo run", field="--seed", value=args.seed,
+                         hint="add --monte-carlo N")
+    target = Path(args.html or args.md)
+    if target.is_dir():
+        raise InputError("the report target is a folder", file=str(target),
+                         expected="a file name, e.g. review.html")
+    if not target.parent.is_dir() and str(target.parent):
+        raise InputError("the report's folder does not exist", file=str(target),
+                         hint=f"create {target.parent} first")
+    design = load_design(args.design, library_folders=args.library)
+    result = check_design(design)
+    threshold = DEFAULT_THRESHOLD if args.threshold is None else args.threshold
+    changes = compare_with_snapshot(design, result, threshold)
+    mc = None
+    if args.monte_carlo is not None:
+        mc = _monte_carlo(design, args.monte_carlo, args.seed)
+    review = build_review(design, result, changes=changes, mc=mc)
+    if args.html:
+        atomic_write(target, review.html())
+        written = [target]
+    else:
+        folder = chart_dir_for(target)
+        text, files = review.markdown(folder)
+        written = []
+        if files:
+            try:
+                (target.parent / folder).mkdir(exist_ok=True)
+            except OSError as exc:
+                from pinlib.errors import WriteError
+
+                raise WriteError(f"cannot make the chart folder: {exc.strerror}",
+                                 file=str(target.parent / folder)) from None
+        for rel, svg in files.items():
+            path = target.parent / rel
+            atomic_write(path, svg)
+            written.append(path)
+        atomic_write(target, text)  # last: the text never links a chart not yet written
+        written.insert(0, target)
+    drawn = sum(1 for c in review.all_charts() if c.svg is not None)
+    missing = [c for c in review.all_charts() if c.svg is None]
+    extra = f" and {len(written) - 1} chart files" if len(written) > 1 else ""
+    print(f"wrote {written[0]}{extra} ({drawn} charts; design {result.status})",
+          file=sys.stderr)
+    for c in missing:
+        print(f"pinlib: note: chart not drawn: {c.title}: {c.error}", file=sys.stderr)
+    return result.exit_code()

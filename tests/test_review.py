@@ -1,0 +1,732 @@
+"""Tests of the design-review report (pinlib.review), its chart data (pinlib.plotdata)
+and ``pinlib report``.
+
+The demo design (an invented scenario, workbooks/designs/demo-board.toml) is reported
+once per module.  The checks are on what the report must hold (the caution, every
+chart's SVG, every check's source, the parts' provenance, the change list), on the
+chart data agreeing with the figures the engines report, and — in headless Chromium —
+on the page actually rendering without console errors.
+
+What the browser test checks, and how:
+
+* the page renders: a 1280 × 2000 screenshot of its top, decoded with the small PNG
+  reader below (zlib and numpy only), has more than 2 % non-white pixels, at least 50
+  distinct colours (quantised to 4 bits per channel), and the status badges' colours
+  (Okabe–Ito bluish green for PASS, orange for WARN: the demo has both);
+* every chart's SVG is in the browser's DOM: ``--dump-dom`` serialises the parsed
+  document, and it holds one ``<svg`` per chart inside the chart figures;
+* the page logs nothing to the console: Chromium run with ``--enable-logging=stderr
+  --v=0`` writes every console message (errors and uncaught exceptions included) as
+  an ``INFO:CONSOLE`` line; none may appear, nor an ``Uncaught`` exception.  The page
+  has no script, so any console line means something went wrong;
+* a control page with a deliberate script error and a blank page make the same
+  detectors fire, so the checks can fail.
+"""
+
+from __future__ import annotations
+
+import base64
+import html
+import math
+import re
+import shutil
+import struct
+import subprocess
+import zlib
+from html.parser import HTMLParser
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from pinlib import plotdata, review
+from pinlib.check import check_design
+from pinlib.cli import main
+from pinlib.compare import compare_with_snapshot, save_snapshot, snapshot, value_label
+from pinlib.design import load_design
+from pinlib.physics import pullup as pu
+from pinlib.result import CAUTION
+
+pytest.importorskip("altair")
+pytest.importorskip("vl_convert")
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"
+
+# published: UM10204 rev. 6, §7.1: the 30-70 % rise of an RC is ln(7/3)·RC = 0.8473·RC,
+# so eq. 1 reads Rp(max) = tr / (0.8473 Cb); table 10: Fast-mode tr(max) 300 ns.
+UM10204_RISE_FACTOR = 0.8473
+FAST_MODE_TR_MAX = 300e-9
+
+# from the part files of the demo (devices/controller/mcu-3v3.toml and
+# devices/memory/nor-flash-spi.toml, invented generic values)
+MCU_SCLK_EDGES = [(15e-12, 2.5e-9, 2.5e-9), (50e-12, 5e-9, 4.5e-9)]   # load, rise, fall
+MCU_T_VALID, MCU_T_SETUP = 8e-9, 6e-9
+FLASH_T_VALID, FLASH_T_SETUP = 7e-9, 2e-9
+
+# Okabe–Ito colours of the status badges (B. Wong, Nature Methods 8, 441 (2011), fig. 2)
+BLUISH_GREEN = (0, 158, 115)
+ORANGE = (230, 159, 0)
+
+
+# =========================================================================== fixtures
+
+
+@pytest.fixture(scope="module")
+def demo():
+    design = load_design(DEMO)
+    return design, check_design(design)
+
+
+@pytest.fixture(scope="module")
+def built(demo):
+    design, result = demo
+    return review.build_review(design, result)
+
+
+@pytest.fixture(scope="module")
+def page(built):
+    return built.html()
+
+
+def _expected_charts(design) -> dict[str, int]:
+    """How many charts of each kind the demo's structure calls for."""
+    n = {"pullup-window": 0, "edge-vs-load": 0, "waveforms": 0, "timing-budget": 0}
+    for bus in design.buses:
+        if bus.protocol in ("i2c", "smbus"):
+            n["pullup-window"] += 2 * len(bus.segments)      # SDA and SCL of each segment
+        elif bus.protocol == "spi":
+            n["timing-budget"] += 1
+            for sig in bus.lines:
+                if sig == "cipo":  # each peripheral with a push-pull CIPO drives it
+                    drivers = sum(
+                        1 for d in bus.peripherals
+                        if (p := d.part.pin_for("spi-cipo")) and p[1].drive == "push-pull")
+                else:              # the controller drives SCLK, COPI and CS
+                    drivers = 1
+                n["edge-vs-load"] += drivers
+                n["waveforms"] += drivers
+    return n
+
+
+_FIGURE = re.compile(r'<figure id="chart-([^"]+)" data-chart="([^"]+)">(.*?)</figure>', re.S)
+
+
+def _figures_by_kind(text: str) -> dict[str, list[str]]:
+    out: dict[str, list[str]] = {}
+    for _key, kind, body in _FIGURE.findall(text):
+        out.setdefault(kind, []).append(body)
+    return out
+
+
+# =========================================================================== the report
+
+
+def test_caution_is_at_the_top(page, built):
+    first_section = page.index("<section")
+    assert html.escape(CAUTION) in page[:first_section]
+    assert page.index(html.escape(CAUTION)) < page.index("<main>")
+    md, _ = built.markdown()
+    assert md.splitlines()[2] == f"> **Caution.** {CAUTION}"
+
+
+def test_every_chart_svg_is_present(page, demo):
+    design, _ = demo
+    expected = _expected_charts(design)
+    # the demo: 3 open-drain segments, two SPI buses with 4 and 3 routed lines
+    assert expected == {"pullup-window": 6, "edge-vs-load": 7, "waveforms": 7,
+                        "timing-budget": 2}
+    found = _figures_by_kind(page)
+    for kind, n in expected.items():
+        bodies = found.get(kind, [])
+        assert len(bodies) == n, kind
+        assert all(b.count("<svg") == 1 for b in bodies), kind
+        assert all("Chart not drawn" not in b for b in bodies), kind
+    assert page.count("<svg") == sum(expected.values())  # no other SVG on the page
+
+
+def test_every_check_names_its_source(page, built, demo):
+    _, result = demo
+    md, _ = built.markdown()
+    n = 0
+    for bus in result.buses:
+        for _seg, _sig, c in bus.all_checks():
+            assert c.source, (bus.id, c.id)
+            assert f'<td class="src">{html.escape(c.source)}</td>' in page, (bus.id, c.id)
+            assert review._m(c.source) in md, (bus.id, c.id)
+            n += 1
+    # every check row carries its status as text as well as colour
+    rows = re.findall(r'<tr class="r-(pass|warn|fail)"><td><span class="status s-(\w+)">(\w+)<',
+                      page)
+    assert len(rows) >= n
+    assert all(a == b and c == b.upper() for a, b, c in rows)
+
+
+def test_parts_with_the_provenance_of_each_value(page, built, demo):
+    design, result = demo
+    parts = snapshot(design, result)["parts"]
+    refs = {d.ref for b in design.buses for d in b.devices}
+    assert set(parts) == refs
+    inherited = 0
+    for ref, p in parts.items():
+        assert f'id="part-{review._slug(ref)}"' in page
+        for key, entry in p["values"].items():
+            assert html.escape(value_label(key)) in page
+            if entry.get("source"):
+                assert html.escape(entry["source"]) in page
+            if entry.get("origin") and entry["origin"] != p["part"]:
+                assert f"inherited from {html.escape(entry['origin'])}" in page
+                inherited += 1
+    # the demo's parts extend generic classes, so some values are inherited
+    assert inherited > 0
+    assert "generic" in page and "this part" in page
+
+
+def test_page_is_self_contained_and_well_formed(page):
+    assert page.startswith("<!DOCTYPE html>")
+    assert '<html lang="en">' in page
+    assert "<script" not in page.lower()
+    assert "<link" not in page.lower()
+    # every src/href points inside the page (SVG namespaces are attributes, not links)
+    refs = re.findall(r'\b(?:src|href)\s*=\s*"([^"]*)"', page)
+    assert refs and all(r.startswith("#") for r in refs)
+    assert "url(http" not in page
+
+    class Ids(HTMLParser):
+        def __init__(self):
+            super().__init__()
+            self.ids = []
+            self.h1 = 0
+
+        def handle_starttag(self, tag, attrs):
+            self.h1 += tag == "h1"
+            self.ids += [v for k, v in attrs if k == "id"]
+
+    p = Ids()
+    p.feed(page)
+    assert p.h1 == 1
+    assert len(p.ids) == len(set(p.ids))
+    targets = set(p.ids)
+    assert all(r[1:] in targets for r in refs)
+
+
+def test_units_carry_si_prefixes(page):
+    # published: SI Brochure, 9th edition (BIPM 2019), table 7: p n µ m k M prefixes
+    for text in ("pF", "kΩ", "ns", "mV", "MHz", "µ"):
+        assert text in page
+    assert not re.search(r"\d[eE][-+]?\d+ ?(F|s|Ω|V|Hz)\b", page)  # no "1.05e-10 F"
+
+
+def test_markdown_with_chart_files_and_embedded(built, demo):
+    design, _ = demo
+    n = sum(_expected_charts(design).values())
+    md, files = built.markdown("demo-charts")
+    links = re.findall(r"!\[[^\]]*\]\(([^)]+)\)", md)
+    assert len(links) == n == len(files)
+    assert set(links) == set(files)
+    assert all(t.startswith("demo-charts/") and t.endswith(".svg") for t in links)
+    assert all(s.startswith("<?xml") and s.count("<svg") == 1 for s in files.values())
+    assert "## Parts and the provenance of their values" in md
+    assert review._no_snapshot_text(design) in md
+    embedded, none = built.markdown()
+    assert none == {}
+    uris = re.findall(r"\(data:image/svg\+xml;base64,([A-Za-z0-9+/=]+)\)", embedded)
+    assert len(uris) == n
+    assert base64.b64decode(uris[0]).decode("utf-8").startswith("<svg")
+
+
+def test_render_functions(demo):
+    design, result = demo
+    mc = _monte_carlo_result()
+    text = review.render_html(design, result, mc=mc)
+    kinds = _figures_by_kind(text)
+    assert len(kinds["histogram"]) == 1 and kinds["histogram"][0].count("<svg") == 1
+    assert f"{mc['checks'][0]['pass_fraction']:.2%}" in text
+    assert 'id="monte-carlo"' in text
+    md = review.render_markdown(design, result, mc=mc)
+    assert "## Monte Carlo" in md and md.count("data:image/svg+xml") == 23
+
+
+def _monte_carlo_result() -> dict:
+    """A small Monte Carlo run of one rise-time check, computed here: Rp uniform within
+    ±5 % of 2.7 kΩ and Cb within ±20 % of 105 pF (the demo's main segment), rise
+    0.8473·Rp·Cb (UM10204 rev. 6 §7.1) against the Fast-mode 300 ns."""
+    rng = np.random.default_rng(7)
+    rp = 2700.0 * rng.uniform(0.95, 1.05, 4000)
+    cb = 105e-12 * rng.uniform(0.8, 1.2, 4000)
+    tr = pu.rise_time(rp, cb, UM10204_RISE_FACTOR)
+    frac = float(np.mean(tr <= FAST_MODE_TR_MAX))
+    half = 1.96 * math.sqrt(frac * (1 - frac) / tr.size)  # normal approximation
+    return {"n": tr.size, "seed": 7, "checks": [
+        {"path": "sensors/main-3v3", "id": "rise-time", "subject": "SDA", "samples": tr,
+         "limit": FAST_MODE_TR_MAX, "unit": "s", "kind": "max", "pass_fraction": frac,
+         "ci": (frac - half, frac + half), "label": "Rise time",
+         "source": "I2C-bus specification UM10204 rev. 6, table 10 (tr, tf)"}]}
+
+
+# =========================================================================== chart data
+
+
+def _group(result, bus_id, segment_id):
+    b = result.bus(bus_id)
+    return next(s for s in b.segments if s.id == segment_id) if b.segments else b
+
+
+@pytest.mark.parametrize("bus_id", ["sensors", "power"])
+def test_pullup_window_agrees_with_the_result(demo, bus_id):
+    design, result = demo
+    bus = design.bus(bus_id)
+    for seg in bus.segments:
+        grp = _group(result, bus_id, seg.id)
+        for sig in ("sda", "scl"):
+            d = plotdata.pullup_window_data(bus, design, seg.id, sig)
+            assert d.chosen_cb == grp.figures[f"bus_capacitance_{sig}"].value
+            assert d.chosen_rp == grp.figures[f"pullup_{sig}"].value
+            window = next(c for c in grp.checks
+                          if c.id == "pullup-window" and c.subject == sig.upper())
+            assert d.rp_min == window.details["rp_min"]
+            assert d.rp_max_chosen == pytest.approx(window.details["rp_max"], rel=1e-12)
+            assert d.chosen_cb in d.cb
+            assert np.all(np.diff(d.cb) > 0)
+            if bus.protocol == "i2c":
+                # published: UM10204 rev. 6 §7.1 eq. 1 with Fast-mode tr(max) 300 ns
+                # (table 10); the factor is printed to 4 digits
+                assert d.tr_max == FAST_MODE_TR_MAX
+                expected = FAST_MODE_TR_MAX / (UM10204_RISE_FACTOR * d.cb)
+                np.testing.assert_allclose(d.rp_max, expected, rtol=1e-4)
+        assert grp.figures["rp_max"].value == pytest.approx(
+            min(plotdata.pullup_window_data(bus, design, seg.id, s).rp_max_chosen
+                for s in ("sda", "scl")), rel=1e-12)
+
+
+def _lines(design, result):
+    for bus in design.buses:
+        if bus.protocol != "spi":
+            continue
+        lines = plotdata.line_analyses(bus, design)
+        for sig in lines:
+            yield bus, lines, sig, next(ln for ln in result.bus(bus.id).lines
+                                        if ln.signal == sig)
+
+
+def test_edge_vs_load_agrees_with_the_result(demo):
+    design, result = demo
+    seen = 0
+    for bus, lines, sig, ln in _lines(design, result):
+        e = plotdata.edge_vs_load_data(bus, design, sig, analysis=lines)
+        # one driver per line in the demo: its operating point is the line's figures
+        assert e.operating == (ln.figures["load_capacitance"].value,
+                               ln.figures["edge_rise_time"].value)
+        assert e.operating_fall == ln.figures["edge_fall_time"].value
+        assert e.rs == ln.figures["series_resistor"].value
+        assert e.model == ln.figures["model"].value
+        model = lines[sig].models[e.driver]
+        # derived from a linear ramp into no load: its 10-90 % part is 0.8 of the ramp
+        assert e.curves["rise 10-90"][0] == pytest.approx(0.8 * model.t_ramp_rise, rel=1e-9)
+        assert e.curves["fall 10-90"][0] == pytest.approx(0.8 * model.t_ramp_fall, rel=1e-9)
+        if e.rs > 0:
+            # a series resistor only slows the edge into a load
+            assert np.all(e.curves[f"rise 10-90, Rs {review._f(e.rs, 'Ω')}"][1:]
+                          > e.curves["rise 10-90"][1:])
+        if e.driver == "U1" and sig == "sclk":
+            got = sorted(zip(e.points[0], e.points[1], e.points[2], strict=True))
+            want = sorted([(c, r, "rise 10-90") for c, r, _ in MCU_SCLK_EDGES]
+                          + [(c, f, "fall 10-90") for c, _, f in MCU_SCLK_EDGES])
+            assert [(pytest.approx(a, rel=1e-12), pytest.approx(b, rel=1e-12), n)
+                    for a, b, n in want] == got
+            seen += 1
+    assert seen == 2  # SCLK of both SPI buses
+
+
+def test_waveforms_agree_with_the_result(demo):
+    design, result = demo
+    terminated = 0
+    for bus, lines, sig, ln in _lines(design, result):
+        w = plotdata.waveform_data(bus, design, sig, analysis=lines)
+        rs = ln.figures["series_resistor"].value
+        final = f"Rs {review._f(rs, 'Ω')}" if rs > 0 else "no series R"
+        rise, fall = w.traces[f"rise, {final}"], w.traces[f"fall, {final}"]
+        assert np.max(rise) - w.vdd == pytest.approx(ln.figures["overshoot"].value,
+                                                     rel=1e-12, abs=1e-15)
+        assert -np.min(fall) == pytest.approx(ln.figures["undershoot"].value, rel=1e-12,
+                                              abs=1e-15)
+        assert w.overshoot[f"rise, {final}"] == ln.figures["overshoot"].value
+        high = ln.check("level-high")
+        low = ln.check("level-low")
+        assert (w.v_il, w.v_ih) == (low.limit, high.limit)
+        assert all(a.shape == w.t.shape for a in w.traces.values())
+        assert np.all(np.diff(w.t) > 0)
+        if rs > 0:
+            term = ln.check("series-termination")
+            without = term.details["without"]
+            assert np.max(w.traces["rise, no series R"]) - w.vdd == pytest.approx(
+                without["overshoot"], rel=1e-12)
+            # the terminated line rings less than the bare one
+            assert w.overshoot[f"rise, {final}"] < w.overshoot["rise, no series R"]
+            terminated += 1
+    assert terminated == 3  # the display bus's three lines
+
+
+def test_timing_budget_agrees_with_the_result(demo):
+    design, result = demo
+    for bus in design.buses:
+        if bus.protocol != "spi":
+            continue
+        br = result.bus(bus.id)
+        tb = plotdata.timing_budget_data(bus, design)
+        # derived from the SPI budget structure (REFERENCES.md, SPI): T/2 at the clock
+        assert tb.period == pytest.approx(1.0 / bus.clock, rel=1e-15)
+        budget_checks = [c for c in br.checks if c.id != "f-max"]
+        assert len(tb.margins) == len(budget_checks)
+        for c in budget_checks:
+            path = f"{c.id} {c.subject}"
+            assert tb.margins[path] == pytest.approx(c.value - c.limit, rel=1e-9, abs=1e-18)
+            assert tb.status[path] == c.status
+            assert tb.sources[path] == c.source
+            used = sum(d for p, _, d in tb.rows if p == path)
+            assert tb.available[path] - used == pytest.approx(tb.margins[path], rel=1e-9)
+            assert tb.available[path] == pytest.approx(0.5 / bus.clock, rel=1e-12)
+        for fig, tid in (("copi_setup_margin", "copi-setup"), ("copi_hold_margin", "copi-hold"),
+                         ("cipo_setup_margin", "cipo-setup")):
+            margins = [m for p, m in tb.margins.items() if p.startswith(tid + " ")]
+            if margins:
+                assert br.figures[fig].value == pytest.approx(min(margins), rel=1e-12)
+            else:
+                assert br.figures[fig].value is None
+    flash = plotdata.timing_budget_data(design.bus("flash"), design)
+    rows = {(p, c): d for p, c, d in flash.rows}
+    assert rows[("copi-setup U7", "output valid (t_valid)")] == MCU_T_VALID
+    assert rows[("copi-setup U7", "required setup or hold")] == FLASH_T_SETUP
+    assert rows[("cipo-setup U7", "output valid (t_valid)")] == FLASH_T_VALID
+    assert rows[("cipo-setup U7", "required setup or hold")] == MCU_T_SETUP
+
+
+def test_plotdata_refuses_the_wrong_bus(demo):
+    from pinlib.errors import InputError
+
+    design, _ = demo
+    with pytest.raises(InputError, match="pull-up window"):
+        plotdata.pullup_window_data(design.bus("flash"), design)
+    with pytest.raises(InputError, match="timing budget"):
+        plotdata.timing_budget_data(design.bus("sensors"), design)
+    with pytest.raises(InputError, match="no segment"):
+        plotdata.pullup_window_data(design.bus("sensors"), design, "nowhere")
+    with pytest.raises(InputError, match="does not drive"):
+        plotdata.waveform_data(design.bus("flash"), design, "sclk", driver="U7")
+
+
+def _gpio_design(tmp_path, reset_rs: str):
+    data = ROOT / "tests" / "data" / "pushpull"   # the push-pull engine's invented test parts
+    text = f"""format = "pinlib.design/1"
+title = "GPIO nets (invented)"
+library = ["{data.as_posix()}"]
+
+[[bus]]
+id = "reset"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  {{ ref = "U1", part = "pp-ctrl", role = "controller", pin = "reset" }},
+  {{ ref = "U2", part = "pp-periph", pin = "reset" }},
+]
+lines.reset = {{ length = "6 cm", capacitance = "1 pF/cm", delay = "50 ps/cm", series_resistor = "{reset_rs}" }}
+
+[[bus]]
+id = "irq"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  {{ ref = "U1", part = "pp-ctrl", role = "controller", pin = "irq" }},
+  {{ ref = "U2", part = "pp-periph", pin = "irq" }},
+  {{ ref = "M1", part = "pp-pullup-module", pin = "irq" }},
+]
+lines.irq = {{ length = "6 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }}
+"""
+    path = tmp_path / f"gpio-{reset_rs.replace(' ', '')}.toml"
+    path.write_text(text, encoding="utf-8")
+    return load_design(path)
+
+
+def test_gpio_nets(tmp_path):
+    design = _gpio_design(tmp_path, "22 Ω")
+    result = check_design(design)
+    text = review.render_html(design, result)
+    kinds = _figures_by_kind(text)
+    # one push-pull driver on the reset net, one open-drain driver on the irq net
+    assert {k: len(v) for k, v in kinds.items()} == {"edge-vs-load": 2, "waveforms": 2}
+    bus = design.bus("reset")
+    w = plotdata.waveform_data(bus, design, "reset")
+    assert set(w.traces) == {"rise, Rs 22 Ω", "fall, Rs 22 Ω", "rise, no series R",
+                             "fall, no series R"}
+    # the case without the fixed resistor, solved here, is what the engine reports for
+    # the same line with series_resistor = "none"
+    bare = _gpio_design(tmp_path, "none")
+    (line,) = check_design(bare).bus("reset").lines
+    assert w.overshoot["rise, no series R"] == pytest.approx(line.figures["overshoot"].value,
+                                                             rel=1e-12)
+    (line22,) = result.bus("reset").lines
+    assert w.overshoot["rise, Rs 22 Ω"] == line22.figures["overshoot"].value
+    irq = plotdata.waveform_data(design.bus("irq"), design, "irq")
+    assert irq.driver == "U2" and set(irq.traces) == {"rise, no series R", "fall, no series R"}
+
+
+def test_svg_ids_are_made_unique():
+    svg = ('<?xml version="1.0"?><svg xmlns="http://www.w3.org/2000/svg"><defs>'
+           '<clipPath id="clip1"><rect/></clipPath></defs><g clip-path="url(#clip1)"/>'
+           '<use href="#clip1"/></svg>')
+    a = review._clean_svg(svg, "01-a", "A <chart>")
+    b = review._clean_svg(svg, "02-b", "B")
+    assert a.startswith('<svg role="img" aria-label="A &lt;chart&gt;" ')
+    assert 'id="01-a-clip1"' in a and "url(#01-a-clip1)" in a and 'href="#01-a-clip1"' in a
+    assert 'id="02-b-clip1"' in b and "clip1\"" not in a.replace("01-a-clip1", "")
+
+
+# =========================================================================== changes
+
+
+def test_change_list_against_the_snapshot(tmp_path):
+    board = tmp_path / "board.toml"
+    board.write_text(DEMO.read_text(encoding="utf-8"), encoding="utf-8")
+    before = load_design(board)
+    save_snapshot(before, check_design(before))
+    text = board.read_text(encoding="utf-8")
+    board.write_text(text.replace('part = "eeprom-i2c"', 'part = "io-expander-i2c"', 1),
+                     encoding="utf-8")
+    after = load_design(board)
+    result = check_design(after)
+    changes = compare_with_snapshot(after, result)
+    assert changes is not None and changes.part_changes
+    page = review.render_html(after, result, changes=changes)
+    section = page[page.index('<section id="changes"'):]
+    head = changes.part_changes[0].lines()[0]
+    assert head.startswith("U4 part eeprom-i2c → io-expander-i2c")
+    assert html.escape(head) in section
+    for fc in changes.figure_changes:
+        assert f"<code>{html.escape(fc.name)}</code>" in section
+    assert review._no_snapshot_text(after) not in page
+
+
+# =========================================================================== command
+
+
+def test_command_writes_html(tmp_path, capsys):
+    out = tmp_path / "review.html"
+    code = main(["report", str(DEMO), "--html", str(out)])
+    assert code == 0  # the demo warns, which passes
+    text = out.read_text(encoding="utf-8")
+    assert text.count("<svg") == 22
+    assert "wrote" in capsys.readouterr().err
+    assert not list(tmp_path.glob(".review.html.*"))  # no temporary file left
+
+
+def test_command_writes_markdown_with_its_charts(tmp_path):
+    out = tmp_path / "board.md"
+    assert main(["report", str(DEMO), "--md", str(out)]) == 0
+    text = out.read_text(encoding="utf-8")
+    charts = sorted((tmp_path / "board-charts").glob("*.svg"))
+    assert len(charts) == 22
+    for c in charts:
+        assert f"(board-charts/{c.name})" in text
+
+
+def test_command_leaves_an_old_report_whole_on_error(tmp_path, capsys):
+    out = tmp_path / "review.html"
+    out.write_text("old report", encoding="utf-8")
+    bad = tmp_path / "bad.toml"
+    bad.write_text('format = "pinlib.design/1"\ntitle = "x"\n[[bus]]\nid = "a"\n'
+                   'protocol = "i2c"\nsupply = "3.3"\n', encoding="utf-8")
+    assert main(["report", str(bad), "--html", str(out)]) == 2
+    assert out.read_text(encoding="utf-8") == "old report"
+    assert "error" in capsys.readouterr().err
+
+
+def test_command_arguments(tmp_path, capsys):
+    with pytest.raises(SystemExit) as exc:
+        main(["report", str(DEMO)])
+    assert exc.value.code == 2
+    with pytest.raises(SystemExit) as exc:
+        main(["report", str(DEMO), "--html", "a.html", "--md", "a.md"])
+    assert exc.value.code == 2
+    assert main(["report", str(DEMO), "--html", str(tmp_path / "x.html"), "--seed", "3"]) == 2
+    assert "--monte-carlo" in capsys.readouterr().err
+    assert main(["report", str(DEMO), "--html", str(tmp_path / "no" / "x.html")]) == 2
+    with pytest.raises(SystemExit) as exc:
+        main(["report", "--help"])
+    assert exc.value.code == 0
+    assert "pinlib report workbooks/designs/demo-board.toml --html" in capsys.readouterr().out
+
+
+def test_command_with_monte_carlo(tmp_path, capsys):
+    pytest.importorskip("pinlib.whatif")
+    from pinlib import whatif
+
+    out = tmp_path / "mc.html"
+    assert main(["report", str(DEMO), "--html", str(out), "--monte-carlo", "300",
+                 "--seed", "5"]) == 0
+    text = out.read_text(encoding="utf-8")
+    section = text[text.index('<section id="monte-carlo"'):text.index('<section id="parts"')]
+    design = load_design(DEMO)
+    mc = whatif.monte_carlo(design, 300, seed=5, progress=False)
+    varying = [c for c in mc.checks if c.varies or c.passes.passes < c.passes.n]
+    assert varying
+    hist = _figures_by_kind(section).get("histogram", [])
+    assert len(hist) == min(review.MC_CHARTS, len(varying))
+    assert all(b.count("<svg") == 1 for b in hist)
+    for c in varying:  # the same seed gives the same boards: the table matches the run
+        assert f"<td>{html.escape(c.name)}</td><td class=\"num\">{c.passes.fraction:.2%}</td>" \
+            in section
+    assert "seed 5" in section
+
+
+def test_review_of_a_monte_carlo_run(demo):
+    pytest.importorskip("pinlib.whatif")
+    from pinlib import whatif
+
+    design, result = demo
+    mc = whatif.monte_carlo(design, 500, seed=11, progress=False)
+    md = review.render_markdown(design, result, mc=mc)
+    shown = md[md.index("## Monte Carlo"):md.index("## Parts")]
+    for c in mc.checks:
+        if c.varies:
+            lo, hi = c.passes.interval
+            assert f"| {review._m(c.name)} | {c.passes.fraction:.2%} | {lo:.2%} to {hi:.2%} |" \
+                in shown
+    assert shown.count("data:image/svg+xml") == min(
+        review.MC_CHARTS, sum(1 for c in mc.checks if c.varies))
+
+
+def test_command_without_a_monte_carlo_engine(tmp_path, capsys, monkeypatch):
+    from pinlib.commands import report as cmd
+
+    monkeypatch.setattr(cmd, "MONTE_CARLO_MODULES", ("pinlib.no_such_engine",))
+    out = tmp_path / "x.html"
+    assert main(["report", str(DEMO), "--html", str(out), "--monte-carlo", "100"]) == 2
+    assert "Monte Carlo engine is not available" in capsys.readouterr().err
+    assert not out.exists()
+
+
+# =========================================================================== browser
+
+
+def _png_pixels(data: bytes) -> np.ndarray:
+    """Decode an 8-bit, non-interlaced RGB or RGBA PNG (what Chromium writes) to an
+    array of shape (height, width, channels).  PNG specification (W3C, 2003), §9:
+    filter types 0-4 per scanline."""
+    assert data[:8] == b"\x89PNG\r\n\x1a\n", "not a PNG"
+    pos, chunks, header = 8, [], None
+    while pos < len(data):
+        (n,) = struct.unpack(">I", data[pos:pos + 4])
+        kind, body = data[pos + 4:pos + 8], data[pos + 8:pos + 8 + n]
+        pos += 12 + n
+        if kind == b"IHDR":
+            header = struct.unpack(">IIBBBBB", body)
+        elif kind == b"IDAT":
+            chunks.append(body)
+        elif kind == b"IEND":
+            break
+    width, height, depth, colour, _, _, interlace = header
+    assert depth == 8 and interlace == 0 and colour in (2, 6)
+    bpp = 3 if colour == 2 else 4
+    raw = zlib.decompress(b"".join(chunks))
+    stride = width * bpp
+    out = np.empty((height, stride), dtype=np.uint8)
+    prev = np.zeros(stride, dtype=np.uint8)
+    for y in range(height):
+        start = y * (stride + 1)
+        kind = raw[start]
+        line = np.frombuffer(raw, dtype=np.uint8, count=stride, offset=start + 1)
+        if kind == 0:
+            cur = line.copy()
+        elif kind == 2:  # Up
+            cur = line + prev
+        elif kind == 1:  # Sub: a running sum per channel, modulo 256
+            cur = np.cumsum(line.reshape(-1, bpp).astype(np.int64), axis=0)
+            cur = (cur % 256).astype(np.uint8).ravel()
+        else:  # Average (3) and Paeth (4) depend on the pixel just decoded
+            cur_b = bytearray(line.tobytes())
+            up = prev.tobytes()
+            for i in range(stride):
+                a = cur_b[i - bpp] if i >= bpp else 0
+                b = up[i]
+                if kind == 3:
+                    cur_b[i] = (cur_b[i] + ((a + b) >> 1)) & 255
+                else:
+                    c = up[i - bpp] if i >= bpp else 0
+                    p = a + b - c
+                    pa, pb, pc = abs(p - a), abs(p - b), abs(p - c)
+                    pred = a if pa <= pb and pa <= pc else (b if pb <= pc else c)
+                    cur_b[i] = (cur_b[i] + pred) & 255
+            cur = np.frombuffer(bytes(cur_b), dtype=np.uint8)
+        out[y] = cur
+        prev = out[y]
+    return out.reshape(height, width, bpp)[..., :3]
+
+
+def _chromium(url: str, tmp: Path, *extra: str) -> subprocess.CompletedProcess:
+    profile = tmp / "profile"
+    profile.mkdir(exist_ok=True)
+    cmd = ["chromium", "--headless", "--no-sandbox", "--disable-gpu",
+           "--disable-background-networking", "--disable-component-update", "--disable-sync",
+           "--no-first-run", "--disable-quic", f"--user-data-dir={profile}",
+           "--enable-logging=stderr", "--v=0", *extra, url]
+    return subprocess.run(cmd, capture_output=True, text=True, timeout=60, cwd=tmp)
+
+
+def _console_lines(stderr: str) -> list[str]:
+    return [ln for ln in stderr.splitlines() if ":CONSOLE" in ln or "Uncaught" in ln]
+
+
+def _screenshot(path: Path, tmp: Path) -> tuple[np.ndarray, subprocess.CompletedProcess]:
+    shot = tmp / f"{path.stem}.png"
+    run = _chromium(path.as_uri(), tmp, f"--screenshot={shot}", "--window-size=1280,2000")
+    assert shot.exists(), run.stderr[-2000:]
+    return _png_pixels(shot.read_bytes()), run
+
+
+def _colour_count(img: np.ndarray, rgb, tol: int = 6) -> int:
+    return int((np.abs(img.astype(int) - np.array(rgb)).max(axis=2) <= tol).sum())
+
+
+needs_chromium = pytest.mark.skipif(shutil.which("chromium") is None,
+                                    reason="chromium is not on PATH")
+
+
+@pytest.mark.browser
+@needs_chromium
+def test_report_renders_in_chromium(page, tmp_path):
+    report = tmp_path / "review.html"
+    report.write_text(page, encoding="utf-8")
+    img, run = _screenshot(report, tmp_path)
+    assert img.shape == (2000, 1280, 3)
+    non_white = float((img.min(axis=2) < 245).mean())
+    assert non_white > 0.02
+    colours = np.unique((img // 16).reshape(-1, 3), axis=0)
+    assert len(colours) >= 50
+    assert _colour_count(img, BLUISH_GREEN) > 500   # PASS badges
+    assert _colour_count(img, ORANGE) > 500         # WARN badges and the caution's rule
+    assert _console_lines(run.stderr) == []
+    dom = _chromium(report.as_uri(), tmp_path, "--dump-dom")
+    assert dom.returncode == 0
+    assert _console_lines(dom.stderr) == []
+    figures = _figures_by_kind(dom.stdout)
+    assert sum(len(v) for v in figures.values()) == 22
+    assert all(b.count("<svg") == 1 for v in figures.values() for b in v)
+
+
+@pytest.mark.browser
+@needs_chromium
+def test_browser_detectors_can_fail(tmp_path):
+    broken = tmp_path / "broken.html"
+    broken.write_text('<!DOCTYPE html><html lang="en"><head><meta charset="utf-8">'
+                      "<title>control</title></head><body><p>control</p>"
+                      "<script>console.error('deliberate'); missingFunction();</script>"
+                      "</body></html>", encoding="utf-8")
+    _, run = _screenshot(broken, tmp_path)
+    lines = _console_lines(run.stderr)
+    assert any("deliberate" in ln for ln in lines)
+    assert any("Uncaught" in ln for ln in lines)
+    blank = tmp_path / "blank.html"
+    blank.write_text('<!DOCTYPE html><html lang="en"><head><meta charset="utf-8">'
+                     "<title>blank</title></head><body></body></html>", encoding="utf-8")
+    img, _ = _screenshot(blank, tmp_path)
+    assert float((img.min(axis=2) < 245).mean()) < 0.02
