@@ -1,0 +1,617 @@
+"""Tests of the workbench widgets (pinlib.widgets) and of one workbook exported to HTML.
+
+The widget classes are driven from Python the way a user turns their knobs (``set``
+and the named methods).  What each test holds them to:
+
+* the figures a widget shows are what :func:`pinlib.check.check_design` returns for the
+  design text the widget wrote, and the same as for an equivalent design file written
+  by hand here;
+* a few figures against published relations (the I2C rise time, the probe's share of a
+  measured rise, series termination, the SPI budget's half-period term);
+* each chart is redrawn when its data changes (its Vega-Lite data differ) and its
+  operating point is the engine's figure;
+* refusals (a value without a unit, a part that cannot serve a position) are shown
+  beside the field and change nothing.
+
+The browser test executes workbook 02 with nbclient (widget state stored), exports it
+with nbconvert's HTMLExporter, and opens the page in headless Chromium: the widget state
+must be embedded, the static copy must carry the charts as inline SVG, and the screenshot
+must show them (pixel variety and the chart palette's colours).
+"""
+
+from __future__ import annotations
+
+import re
+import shutil
+import subprocess
+import sys
+import textwrap
+from pathlib import Path
+
+import pytest
+
+pytest.importorskip("ipywidgets")
+pytest.importorskip("altair")
+pytest.importorskip("vl_convert")
+
+from pinlib import charts  # noqa: E402
+from pinlib.check import check_design, check_file  # noqa: E402
+from pinlib.design import design_from_text, load_design  # noqa: E402
+from pinlib.errors import DesignError, InputError  # noqa: E402
+from pinlib.library import load_library  # noqa: E402
+from pinlib.tomlfile import tomllib  # noqa: E402
+from pinlib.widgets import (  # noqa: E402
+    BusBuilder,
+    LineExplorer,
+    PartRecorder,
+    SpiBudget,
+    SwapExplorer,
+    find_file,
+)
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"
+WORKBOOKS = ROOT / "workbooks"
+
+# published: SI Brochure, 9th edition (BIPM 2019), table 7 (SI prefixes)
+PREFIX = {"T": 1e12, "G": 1e9, "M": 1e6, "k": 1e3, "": 1.0, "m": 1e-3, "µ": 1e-6, "n": 1e-9,
+          "p": 1e-12, "f": 1e-15}
+# published: UM10204 I2C-bus specification rev. 6 (2014), §7.1: tr = 0.8473 × Rp × Cb
+# (30 % to 70 % of VDD), printed to four digits
+I2C_RISE_FACTOR = 0.8473
+
+
+@pytest.fixture(scope="module")
+def library():
+    return load_library()
+
+
+def _same_result(widget_result, text, library):
+    again = check_design(design_from_text(tomllib.loads(text), text, None, library=library))
+    assert widget_result.to_json() == again.to_json()
+
+
+def _values(figures: dict) -> dict:
+    return {k: f.value for k, f in figures.items()}
+
+
+def _axis_factor(spec: dict, channel: str) -> float:
+    """The SI factor of a chart axis from its title, e.g. 'Bus capacitance Cb (pF)'."""
+    for layer in spec["layer"]:
+        enc = layer.get("encoding", {}).get(channel, {})
+        title = (enc.get("axis") or {}).get("title")
+        if title:
+            m = re.search(r"\(([TGMkmµnpf]?)[A-Za-zΩ]+\)$", title)
+            assert m, title
+            return 1.0 / PREFIX[m.group(1)]
+    raise AssertionError(f"no {channel} axis title")
+
+
+# =========================================================================== BusBuilder
+
+HAND_WRITTEN = """\
+format = "pinlib.design/1"
+title = "Hand-written twin of the builder's bus (invented)"
+
+[board.geometry.outer]
+kind = "microstrip"
+width = "0.20 mm"
+height = "0.18 mm"
+thickness = "35 µm"
+er = 4.2
+
+[[bus]]
+id = "main"
+protocol = "i2c"
+mode = "fast"
+supply = "3.3 V"
+supply_tolerance = "5 %"
+pullup = "4.7 kΩ"
+pullup_tolerance = "1 %"
+trace = { length = "14 cm", geometry = "outer" }
+extra_capacitance = "12 pF"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "eeprom-i2c" },
+  { ref = "U3", part = "rtc-i2c" },
+]
+"""
+
+
+@pytest.fixture(scope="module")
+def builder(library):
+    return BusBuilder(library, peripherals=["eeprom-i2c", "rtc-i2c"], length=0.14)
+
+
+def test_bus_builder_figures_are_the_engines_for_its_design(builder, library):
+    builder.set(pullup="auto", length=0.14, extra_capacitance=0.0)
+    assert builder.error is None
+    _same_result(builder.result, builder.text, library)
+    assert builder.text == builder.design_text()
+
+
+def test_bus_builder_matches_a_hand_written_design(builder, library):
+    builder.set(protocol="i2c", mode="fast", supply=3.3, supply_tolerance=0.05,
+                geometry="microstrip", width=0.2e-3, height=0.18e-3, thickness=35e-6, er=4.2,
+                length=0.14, extra_capacitance=12e-12, pullup=4700.0, pullup_tolerance=0.01)
+    twin = check_design(design_from_text(tomllib.loads(HAND_WRITTEN), HAND_WRITTEN, None,
+                                         library=library)).bus("main")
+    assert _values(builder.figures) == _values(twin.figures)
+    assert [c.to_json() for _, _, c in builder.bus_result.all_checks()] == \
+        [c.to_json() for _, _, c in twin.all_checks()]
+
+
+def test_bus_builder_rise_time_is_the_published_rc_rise(builder):
+    builder.set(pullup=4700.0, pullup_tolerance=0.0, supply_tolerance=0.0, length=0.14,
+                extra_capacitance=12e-12)
+    f = builder.figures
+    expected = I2C_RISE_FACTOR * 4700.0 * f["bus_capacitance_sda"].value
+    assert f["rise_time_sda"].value == pytest.approx(expected, rel=1e-4)
+
+
+def test_bus_builder_redraws_the_window_with_the_engines_operating_point(builder):
+    builder.set(pullup="auto", length=0.05, extra_capacitance=0.0)
+    before, renders = builder.window.data(), builder.window.renders
+    cb_short = builder.figures["bus_capacitance_sda"].value
+    builder.set(length=0.60)
+    after = builder.window.data()
+    assert builder.figures["bus_capacitance_sda"].value > cb_short
+    assert after != before and builder.window.renders == renders + 1
+    w = builder.window_data
+    assert w.chosen_cb == builder.figures["bus_capacitance_sda"].value
+    assert w.chosen_rp == builder.figures["pullup_sda"].value
+    point = after[-1][0]  # the last layer is the chosen point
+    spec = builder.window.spec
+    assert point["cb"] == pytest.approx(w.chosen_cb * _axis_factor(spec, "x"), rel=1e-9)
+    assert point["rp"] == pytest.approx(w.chosen_rp * _axis_factor(spec, "y"), rel=1e-9)
+    assert "<svg" in builder.window.svg and builder.window.widget.value.count("<svg") == 1
+    # an unchanged design is not drawn again
+    builder.set(length=0.60)
+    assert builder.window.renders == renders + 1
+
+
+def test_bus_builder_auto_pullup_lies_in_the_window_and_moves_the_slider(builder):
+    builder.set(pullup="auto", length=0.14)
+    chosen = builder.figures["pullup_resistor"].value
+    assert builder.window_data.rp_min <= chosen <= builder.window_data.rp_max_chosen
+    assert builder.pullup.value == chosen and builder.pullup.disabled
+    assert 'pullup = "auto"' in builder.text
+    builder.set(pullup=2200.0)
+    assert not builder.pullup.disabled and builder.figures["pullup_resistor"].value == 2200.0
+    assert 'pullup = "2200 Ω"' in builder.text
+
+
+def test_bus_builder_refuses_unknown_settings_and_values_off_the_series(builder):
+    with pytest.raises(InputError, match="unknown setting"):
+        builder.set(colour="red")
+    with pytest.raises(InputError, match="pull-up slider"):
+        builder.set(pullup=2345.0)
+    with pytest.raises(InputError, match="range"):
+        builder.set(supply=50.0)
+    with pytest.raises(InputError, match="unknown mode"):
+        builder.set(mode="turbo")
+
+
+def test_bus_builder_filters(library):
+    b = BusBuilder(library, peripherals=())
+    b.set(category="memory")
+    assert b.pick.options and all(library.get(v).category == "memory" for _, v in b.pick.options)
+    b.set(category="any", function="gpio")
+    assert all("gpio" in library.get(v).functions() for _, v in b.pick.options)
+    b.set(function="any", supply=1.8, fits_supply=True)
+    for _, v in list(b.pick.options) + list(b.controller.options):
+        s = library.get(v).supply
+        assert s is None or s.min.at() <= 1.8 <= s.max.at()
+    # no controller runs at 1 V: the design cannot be built, and the widget says why
+    b.set(supply=1.0)
+    assert b.controller.options == ()
+    assert isinstance(b.error, DesignError) and "controller" in b.error.problem
+    assert b.result is None and b.window.svg is None and "controller" in b.status_html.value
+
+
+def test_bus_builder_places_and_removes_parts(library):
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    ref = b.add_peripheral("eeprom-i2c")
+    assert ref == "U3" and b.peripherals == [("U2", "eeprom-i2c"), ("U3", "eeprom-i2c")]
+    assert [d.ref for d in b.design.buses[0].devices] == ["U1", "U2", "U3"]
+    b.remove_peripheral("U2")
+    assert b.peripherals == [("U3", "eeprom-i2c")]
+    with pytest.raises(InputError, match="cannot sit on an open-drain bus"):
+        b.add_peripheral("nor-flash-spi")
+    with pytest.raises(InputError, match="no placed part"):
+        b.remove_peripheral("U9")
+
+
+def test_bench_panel_takes_the_probe_out_of_a_measured_rise(builder):
+    builder.set(pullup=2200.0, length=0.14, rise_measured=300e-9, c_probe=10e-12,
+                levels=(0.3, 0.7))
+    b = builder.bench
+    assert b.rp == builder.window_data.chosen_rp == 2200.0  # no part carries a pull-up
+    # derived from UM10204 rev. 6 §7.1: t(30-70 %) = 0.8473 Rp (Cb + C_probe)
+    c_total = 300e-9 / (I2C_RISE_FACTOR * 2200.0)
+    assert b.cb == pytest.approx(c_total - 10e-12, rel=1e-4)
+    assert b.rise == pytest.approx(I2C_RISE_FACTOR * 2200.0 * b.cb, rel=1e-4)
+    assert b.cb_model == builder.figures["bus_capacitance_sda"].value
+    # faster than the probe alone allows: refused beside the panel
+    builder.set(rise_measured=5e-9)
+    assert builder.bench is None and "faster than the probe" in builder.bench_html.value
+    builder.set(rise_measured=0.0)
+
+
+def test_saved_design_loads_and_checks_the_same(builder, tmp_path, library):
+    builder.set(pullup="auto", length=0.14, extra_capacitance=12e-12)
+    path = builder.save(tmp_path / "board.toml")
+    saved = check_file(path)
+    assert _values(saved.bus(builder.bus_result.id).figures) == _values(builder.figures)
+    assert path.read_text(encoding="utf-8") == builder.text
+
+
+def test_saved_design_names_its_team_folder_relative_to_itself(tmp_path):
+    team = tmp_path / "team"
+    team.mkdir()
+    (team / "eeprom-team.toml").write_text(textwrap.dedent("""\
+        format = "pinlib.part/1"
+        id = "eeprom-team"
+        title = "Team EEPROM (invented)"
+        category = "memory"
+        extends = "eeprom-i2c"
+        """), encoding="utf-8")
+    b = BusBuilder(folders=[team], peripherals=["eeprom-team"])
+    boards = tmp_path / "boards"
+    boards.mkdir()
+    path = b.save(boards / "b.toml")
+    assert 'library = ["../team"]' in path.read_text(encoding="utf-8")
+    assert load_design(path).bus("i2c").devices[1].part_id == "eeprom-team"
+
+
+def test_save_refuses_an_invalid_design_and_writes_nothing(library, tmp_path):
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.set(supply=1.0)  # no controller fits
+    target = tmp_path / "x.toml"
+    with pytest.raises(DesignError, match="controller"):
+        b.save(target)
+    assert not target.exists()
+    b._save_clicked()  # the button with no name: refused beside the box
+    assert "file name" in b.save_error.value
+
+
+# =========================================================================== LineExplorer
+
+
+@pytest.fixture(scope="module")
+def line(library):
+    return LineExplorer(library, driver=("mcu-3v3", "sclk"),
+                        receivers=[("display-controller-spi", "sclk")], length=0.28)
+
+
+def test_line_figures_are_the_engines_for_its_design(line, library):
+    line.set(series="auto", length=0.28)
+    assert line.error is None
+    _same_result(line.result, line.text, library)
+    assert line.edge_data.operating == (line.figures["load_capacitance"].value,
+                                        line.figures["edge_rise_time"].value)
+
+
+def test_line_auto_termination_is_z0_minus_r_out(line, library):
+    import eseries
+
+    line.set(series="auto", length=0.28)
+    z0 = line.figures["z0"].value
+    r_out = library.get("mcu-3v3").pins["sclk"].r_out.value
+    rs = line.figures["series_resistor"].value
+    # common practice, no source: series (source) termination Rs = Z0 - Rout, from E24;
+    # the eseries package gives the E24 neighbours of the ideal value
+    ideal = z0 - r_out
+    assert rs in (eseries.find_less_than_or_equal(eseries.E24, ideal),
+                  eseries.find_greater_than_or_equal(eseries.E24, ideal))
+
+
+def test_line_with_and_without_termination(line):
+    line.set(series="none", length=0.28)
+    bare, bare_waves = line.figures, line.wave_data
+    assert bare["series_resistor"].value == 0.0
+    assert set(bare_waves.traces) == {"rise, no series R", "fall, no series R"}
+    line.set(series=33.0)
+    assert line.figures["series_resistor"].value == 33.0
+    assert set(line.wave_data.traces) == {"rise, Rs 33 Ω", "fall, Rs 33 Ω",
+                                          "rise, no series R", "fall, no series R"}
+    # the terminated line overshoots less (the reflection is absorbed at the source)
+    assert line.figures["overshoot"].value < bare["overshoot"].value
+    w = line.wave_data
+    assert w.overshoot["rise, no series R"] == pytest.approx(bare["overshoot"].value)
+    line.set(series="auto")
+
+
+def test_line_charts_follow_the_length(line):
+    line.set(series="auto", length=0.10)
+    edges, waves = line.edges.data(), line.waves.data()
+    line.set(length=0.40)
+    assert line.edges.data() != edges and line.waves.data() != waves
+    assert line.edges.svg.count("<svg") == 1 and line.waves.svg.count("<svg") == 1
+
+
+def test_line_receivers_and_pins(library):
+    le = LineExplorer(library, receivers=[("nor-flash-spi", "sclk")], length=0.05)
+    assert all(library.get(p).pins[n].function == "spi-sclk" for _, (p, n) in le.pick.options)
+    ref = le.add_receiver("display-controller-spi", "sclk")
+    assert [r for r, _, _ in le.receivers] == ["U2", ref]
+    with pytest.raises(InputError, match="not an input pin"):
+        le.add_receiver("nor-flash-spi", "cipo")
+    le.remove_receiver("U2")
+    le.remove_receiver(ref)
+    # no receiver left: the line still evaluates, the waveform chart says why it is empty
+    assert le.error is None and le.waves.svg is None
+    assert "no receiving input" in le.waves.message
+    le.set(driver_pin="copi")
+    assert le.design.buses[0].devices[0].pin == "copi"
+
+
+# =========================================================================== SpiBudget
+
+
+@pytest.fixture(scope="module")
+def budget():
+    return SpiBudget(DEMO, bus="display")
+
+
+def test_spi_budget_at_the_saved_clock_is_check_file(budget):
+    budget.set(clock=10e6, spi_mode=3)
+    saved = check_file(DEMO).bus("display")
+    assert _values(budget.figures) == _values(saved.figures)
+    assert budget.bus_result.to_json() == saved.to_json()
+
+
+def test_spi_budget_follows_clock_and_mode(budget):
+    budget.set(clock=5e6, spi_mode=0)
+    redo = check_design(design_from_text(budget.design_data(), budget.base.text,
+                                         budget.base.path, library=budget.library))
+    assert budget.bus_result.to_json() == redo.bus("display").to_json()
+    assert budget.design.bus("display").spi_mode == 0
+    m5 = budget.budget_data.margins["copi-setup U12"]
+    data5 = budget.chart.data()
+    budget.set(clock=8e6)
+    m8 = budget.budget_data.margins["copi-setup U12"]
+    # derived from the COPI setup budget T/2 + sclk_early - t_valid - copi_late >= t_setup:
+    # only the half period depends on the clock
+    assert m5 - m8 == pytest.approx((1 / 5e6 - 1 / 8e6) / 2, rel=1e-9)
+    assert budget.chart.data() != data5
+    budget.set(clock=10e6, spi_mode=3)
+
+
+def test_spi_max_clock_and_what_limits_it(budget):
+    budget.set(clock=10e6, spi_mode=3)
+    f_max = budget.figures["max_clock"].value
+    assert budget.limits[0].clock == pytest.approx(f_max, rel=1e-12)
+    assert [x.clock for x in budget.limits] == sorted(x.clock for x in budget.limits)
+    assert budget.limits[0].what in budget.max_html.value
+    budget.set(clock=f_max)
+    timing = [c for _, _, c in budget.bus_result.all_checks() if c.id != "f-max"]
+    assert all(c.status != "fail" for c in timing)
+    budget.set(clock=f_max * 1.05)
+    assert any(c.status == "fail" for _, _, c in budget.bus_result.all_checks())
+    budget.set(clock=10e6)
+
+
+def test_spi_budget_refuses_a_design_without_that_bus():
+    with pytest.raises(InputError, match="no SPI bus of that id"):
+        SpiBudget(DEMO, bus="sensors")
+
+
+# =========================================================================== PartRecorder
+
+
+def test_recorder_new_part_and_value(tmp_path):
+    team = tmp_path / "team"
+    r = PartRecorder(team)
+    r.set(id="eeprom-acme", extends="eeprom-i2c", new_source="Acme datasheet rev B (invented)")
+    path = r.create()
+    assert path == team / "eeprom-acme.toml" and r.errors == {}
+    assert r.part.value == "eeprom-acme" and "sda.c_in" in r.field.options
+    r.set(part="eeprom-acme", field="sda.c_in", value="12 pF", typ="9 pF", basis="datasheet",
+          source="rev B, table 6 (invented)")
+    assert r.record() == path
+    c_in = load_library([team]).get("eeprom-acme").pins["sda"].c_in
+    # published: SI Brochure, 9th edition, table 7: p = 1e-12
+    assert c_in.value == pytest.approx(12e-12, rel=1e-12)
+    assert (c_in.basis, c_in.source) == ("datasheet", "rev B, table 6 (invented)")
+    assert c_in.typ == pytest.approx(9e-12, rel=1e-12)
+
+
+@pytest.mark.parametrize("form, beside, words", [
+    ({"value": "12"}, "value", "no unit"),
+    ({"value": "12 pH"}, "value", "H where a capacitance"),
+    ({"value": "4k7"}, "value", "plausible range"),
+    ({"typ": "9 pH"}, "typ", "H where a capacitance"),
+    ({"field": "sda.c_inn"}, "field", "unknown field"),
+    ({"field": "xyz.c_in"}, "field", "no such pin"),
+    ({"source": ""}, "source", "needs its source"),
+])
+def test_recorder_shows_refusals_beside_the_field(tmp_path, form, beside, words):
+    team = tmp_path / "team"
+    r = PartRecorder(team)
+    r.set(id="eeprom-acme", extends="eeprom-i2c")
+    path = r.create()
+    before = path.read_text(encoding="utf-8")
+    good = {"part": "eeprom-acme", "field": "sda.c_in", "value": "12 pF", "typ": "",
+            "source": "rev B, table 6 (invented)"}
+    r.set(**(good | form))
+    assert r.record() is None
+    assert set(r.errors) == {beside}, r.errors
+    assert words in r.errors[beside].problem
+    assert words in r.error_labels[beside].value or r.errors[beside].problem in \
+        r.error_labels[beside].value.replace("&#x27;", "'")
+    assert path.read_text(encoding="utf-8") == before
+    # correcting the field clears its message
+    r.set(**{beside: good[beside] if beside in good else "12 pF"})
+    assert beside not in r.errors
+
+
+def test_recorder_new_part_refusals(tmp_path):
+    from pinlib.library.loader import BUILTIN_DIR
+
+    r = PartRecorder(tmp_path / "team")
+    r.set(id="Bad_ID", extends="eeprom-i2c")
+    assert r.create() is None and set(r.errors) == {"id"}
+    assert "valid part id" in r.error_labels["id"].value
+    r.set(id="eeprom-i2c")
+    assert r.create() is None and set(r.errors) == {"id"}  # the id exists
+    builtin = PartRecorder(BUILTIN_DIR)
+    builtin.set(id="never-written", extends="eeprom-i2c")
+    assert builtin.create() is None and "form" in builtin.errors
+    assert not (Path(BUILTIN_DIR) / "never-written.toml").exists()
+    r.set(id="eeprom-x")
+    assert r.create() is not None
+    r.set(part="eeprom-x", field="sda.c_in", value="12 pF", source="s")
+    assert r.record() is not None
+
+
+# =========================================================================== SwapExplorer
+
+
+@pytest.fixture(scope="module")
+def explorer():
+    return SwapExplorer(DEMO)
+
+
+def test_swap_rerun_is_the_engines(explorer):
+    explorer.reset()
+    assert explorer.apply_swap("U4", "io-expander-i2c") == []
+    rerun = check_design(explorer.design.with_parts({"U4": "io-expander-i2c"}))
+    assert explorer.swapped_result.to_json() == rerun.to_json()
+    changed = {pc.ref: pc for pc in explorer.changes.part_changes}
+    assert changed["U4"].new_part == "io-expander-i2c"
+    assert "io-expander-i2c" in explorer.changes_html.value
+    assert explorer.before.svg and explorer.after.svg
+    assert explorer.before.data() != explorer.after.data()
+    assert explorer.static_view()._repr_html_().count("<svg") == 2
+    explorer.reset()
+    assert explorer.changes is None and explorer.after.svg is None
+
+
+def test_swap_refused_with_the_reason(explorer):
+    explorer.reset()
+    reasons = explorer.apply_swap("U4", "nor-flash-spi")
+    assert reasons and any("i2c-sda" in r for r in reasons)
+    assert explorer.swaps == {} and "cannot stand at U4" in explorer.refused_html.value
+    offered = [v for _, v in explorer.new_part.options] if explorer.ref.value == "U4" else []
+    assert "nor-flash-spi" not in offered
+
+
+def test_swap_candidates_ranking(explorer, monkeypatch):
+    pytest.importorskip("pinlib.candidates")
+    explorer.ref.value = "U4"
+    r = explorer.ranking
+    assert r is not None and r.ref == "U4" and r.candidates
+    assert explorer.candidates_box.layout.display is None
+    assert r.candidates[0].part in explorer.candidates_html.value
+    import importlib.util
+
+    real = importlib.util.find_spec
+    monkeypatch.setattr(importlib.util, "find_spec",
+                        lambda name, *a: None if name == "pinlib.candidates" else real(name, *a))
+    explorer.update()
+    assert explorer.ranking is None and explorer.candidates_box.layout.display == "none"
+    assert "pinlib.candidates" in explorer.candidates_note.value
+
+
+def test_find_file_from_a_subfolder(monkeypatch):
+    monkeypatch.chdir(WORKBOOKS)
+    assert find_file("workbooks/designs/demo-board.toml").resolve() == DEMO.resolve()
+    assert find_file("designs/demo-board.toml").resolve() == DEMO.resolve()
+    with pytest.raises(InputError, match="file not found"):
+        find_file("no/such/design.toml")
+
+
+# =========================================================================== imports
+
+
+def test_widgets_stay_out_of_the_command_line_import_path():
+    code = ("import sys, pinlib.cli, pinlib.check; "
+            "bad = [m for m in ('ipywidgets', 'pinlib.widgets', 'altair') if m in sys.modules]; "
+            "print(bad); sys.exit(1 if bad else 0)")
+    run = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         timeout=60)
+    assert run.returncode == 0, run.stdout + run.stderr
+
+
+# =========================================================================== export
+
+
+def _executed(name: str):
+    import nbformat
+    from nbclient import NotebookClient
+
+    nb = nbformat.read(WORKBOOKS / name, as_version=4)
+    NotebookClient(nb, timeout=180, kernel_name="python3",
+                   resources={"metadata": {"path": str(WORKBOOKS)}}).execute()
+    return nb
+
+
+@pytest.fixture(scope="module")
+def exported(tmp_path_factory):
+    pytest.importorskip("nbclient")
+    pytest.importorskip("nbconvert")
+    from nbconvert import HTMLExporter
+
+    nb = _executed("02-push-pull-line.ipynb")
+    body, _ = HTMLExporter(template_name="lab").from_notebook_node(nb)
+    page = tmp_path_factory.mktemp("export") / "02-push-pull-line.html"
+    page.write_text(body, encoding="utf-8")
+    return nb, body, page
+
+
+def test_exported_workbook_embeds_widget_state_and_static_charts(exported):
+    nb, body, _ = exported
+    state = nb.metadata["widgets"]["application/vnd.jupyter.widget-state+json"]["state"]
+    charts_in_state = [m for m in state.values()
+                       if m["model_name"] == "HTMLModel" and "<svg" in m["state"]["value"]]
+    assert len(charts_in_state) >= 2  # edge time against load, far-end waveforms
+    assert '<script type="application/vnd.jupyter.widget-state+json">' in body
+    # the static copy: both charts inline, outside the widgets, so no script is needed
+    static = [o for c in nb.cells if c.cell_type == "code" for o in c.get("outputs", [])
+              if "text/html" in o.get("data", {}) and "<svg" in o["data"]["text/html"]]
+    assert len(static) == 1 and static[0]["data"]["text/html"].count("<svg") == 2
+    assert body.count("Edge time against load") >= 1
+
+
+def _screenshot(page: Path, tmp: Path):
+    from pngcheck import png_pixels
+
+    shot = tmp / f"{page.stem}.png"
+    profile = tmp / f"profile-{page.stem}"
+    cmd = ["chromium", "--headless", "--no-sandbox", "--disable-gpu",
+           "--disable-background-networking", "--disable-component-update", "--disable-sync",
+           "--no-first-run", "--disable-quic", f"--user-data-dir={profile}",
+           f"--screenshot={shot}", "--window-size=1280,2000", page.as_uri()]
+    run = subprocess.run(cmd, capture_output=True, text=True, timeout=60, cwd=tmp)
+    assert shot.exists(), run.stderr[-2000:]
+    return png_pixels(shot.read_bytes())
+
+
+def _chart_pixels(img) -> int:
+    from pngcheck import colour_count
+
+    # the curve colours of the charts (Okabe–Ito blue and vermillion); the page's own
+    # styles use neither
+    return colour_count(img, charts.BLUE, tol=10) + colour_count(img, charts.VERMILLION,
+                                                                 tol=10)
+
+
+@pytest.mark.browser
+@pytest.mark.skipif(shutil.which("chromium") is None, reason="chromium is not on PATH")
+def test_exported_workbook_renders_its_charts_in_chromium(exported, tmp_path):
+    from pngcheck import distinct_colours, non_white_fraction
+
+    _, body, page = exported
+    img = _screenshot(page, tmp_path)
+    assert img.shape == (2000, 1280, 3)
+    # common practice, no source: thresholds well below what the page shows (about 10 %
+    # non-white, several hundred colours, about 1800 chart-coloured pixels) and well above
+    # what a blank or chart-less page gives (the control below)
+    assert non_white_fraction(img) > 0.02
+    assert distinct_colours(img) >= 50
+    assert _chart_pixels(img) > 200
+    # control: the same page with the inline charts taken out shows none of their colours
+    bare = tmp_path / "no-charts.html"
+    bare.write_text(re.sub(r"<svg\b.*?</svg>", "", body, flags=re.S), encoding="utf-8")
+    assert _chart_pixels(_screenshot(bare, tmp_path)) < 20
