@@ -21,10 +21,11 @@ from typing import Annotated, Literal
 
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, ValidationError
 
+from pinlib import messages as M
 from pinlib.errors import DesignError, PinlibError
 from pinlib.library.loader import Library, load_library, pydantic_errors
 from pinlib.library.schema import Part
-from pinlib.quantity import parse
+from pinlib.quantity import format_si, parse
 from pinlib.tomlfile import dotted as dotted_path
 from pinlib.tomlfile import line_index, line_of, load
 
@@ -57,10 +58,11 @@ def _unit_validator(unit, lo=None, hi=None):
     def validate(raw, info=None):
         x = parse(raw, unit, field=getattr(info, "field_name", None))
         if x < 0 and unit not in ("V",):
-            raise DesignError("a negative value", value=raw, expected="zero or more")
+            raise DesignError(M.NEGATIVE_VALUE, value=raw, expected="zero or more")
         if (lo is not None and x < lo) or (hi is not None and x > hi):
-            raise DesignError("outside the plausible range", value=raw,
-                              expected=f"between {lo:g} and {hi:g} {unit}")
+            raise DesignError(M.OUTSIDE_RANGE, value=raw,
+                              expected=f"between {format_si(lo, unit)} and "
+                                       f"{format_si(hi, unit)}")
         return x
 
     return validate
@@ -89,6 +91,15 @@ Resistance = _unit("Ω", 0.0, 1e9)
 Voltage = _unit("V", -100.0, 100.0)
 Frequency = _unit("Hz", 0.0, 100e9)
 Ratio = _unit("%", 0.0, 1.0)
+# A tolerance that takes a pull-up or a supply down to zero leaves nothing to compute
+# (a 100 % pull-up tolerance is a 0 Ω pull-up at its low end); half is already far past
+# any real part (common practice, no source).
+Tolerance = _unit("%", 0.0, 0.5)
+# Board cross-sections: 10 µm to 100 mm for widths and heights, copper up to 1 mm thick.
+# Outside this the trace models give impedances (and the line solver time grids) that no
+# board has (common practice, no source).
+Dimension = _unit("m", 10e-6, 0.1)
+Thickness = _unit("m", 0.0, 1e-3)
 CapPerLength = _unit("F/m", 0.0, 1e-6)
 DelayPerLength = _unit("s/m", 1e-9, 1e-6)
 PullupSetting = _auto_or("Ω", 1e-3, 1e9, words=("auto",))
@@ -101,10 +112,10 @@ class _Raw(BaseModel):
 
 class RawGeometry(_Raw):
     kind: Literal["microstrip", "stripline"]
-    width: Length
-    height: Length | None = None      # microstrip: to the plane; stripline: to each plane
-    spacing: Length | None = None     # stripline: plane to plane
-    thickness: Length = 35e-6         # 1 oz copper, common practice
+    width: Dimension
+    height: Dimension | None = None   # microstrip: to the plane; stripline: to each plane
+    spacing: Dimension | None = None  # stripline: plane to plane
+    thickness: Thickness = 35e-6      # 1 oz copper, common practice
     er: Annotated[float, Field(ge=1.0, le=100.0)]
     method: str | None = None
 
@@ -145,9 +156,9 @@ class RawDevice(_Raw):
 class RawSegment(_Raw):
     id: str | None = None
     supply: Voltage | None = None
-    supply_tolerance: Ratio | None = None
+    supply_tolerance: Tolerance | None = None
     pullup: PullupSetting | None = None
-    pullup_tolerance: Ratio | None = None
+    pullup_tolerance: Tolerance | None = None
     pullup_series: str | None = None
     trace: RawTrace | None = None
     extra_capacitance: Capacitance | None = None
@@ -369,7 +380,7 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
         return {"file": fname, "line": line_of(index, loc)}
 
     if data.get("format") != FORMAT:
-        raise DesignError("not a design file", field="format", value=data.get("format"),
+        raise DesignError(M.NOT_A_DESIGN, field="format", value=data.get("format"),
                           expected=f'format = "{FORMAT}"', **at(("format",)))
     try:
         raw = RawDesign.model_validate(data)
@@ -383,7 +394,7 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
         library = load_library(folders)
         missing = [p for p in library.problems if "folder not found" in p.problem]
         if missing:
-            raise DesignError("a library folder named by the design does not exist",
+            raise DesignError(M.DESIGN_LIBRARY_MISSING,
                               field="library", value=missing[0].file, **at(("library",)))
     return _build(raw, path, library, text, swaps or {})
 
@@ -403,10 +414,9 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
     for name, g in geometries.items():
         loc = ("board", "geometry", name)
         if g.kind == "microstrip" and g.height is None:
-            raise err("a microstrip needs its height above the plane", loc + ("height",))
+            raise err(M.MICROSTRIP_NEEDS_HEIGHT, loc + ("height",))
         if g.kind == "stripline" and g.height is None and g.spacing is None:
-            raise err("a stripline needs spacing (plane to plane) or height (to each plane)",
-                      loc + ("spacing",))
+            raise err(M.STRIPLINE_NEEDS_SPACING, loc + ("spacing",))
 
     used_refs: dict[str, tuple] = {}
     swapped: set[str] = set()
@@ -421,12 +431,12 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
         try:
             part = library.get(part_id)
         except PinlibError as e:
-            raise err("unknown part", loc + ("part",), value=part_id, hint=e.hint) from None
+            raise err(M.UNKNOWN_PART, loc + ("part",), value=part_id, hint=e.hint) from None
         if part.abstract:
-            raise err("an abstract class cannot be placed on a board", loc + ("part",),
+            raise err(M.ABSTRACT_ON_BOARD, loc + ("part",),
                       value=part_id, hint="place a part that extends it, or `pinlib parts new`")
         if part.category == "cable":
-            raise err("a cable class belongs in `cables` or a line's sections", loc + ("part",),
+            raise err(M.CABLE_AS_DEVICE, loc + ("part",),
                       value=part_id)
         role = "peripheral" if d.role == "target" else d.role
         return Device(d.ref, part_id, part, role, d.supply, d.switched, d.series_resistor,
@@ -438,38 +448,35 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
         subs = getattr(t, "sections", ())
         if subs:
             if t.length is not None or t.geometry or t.capacitance or t.part:
-                raise err("give either sections or one stretch (length, geometry...), not both",
-                          loc + ("sections",))
+                raise err(M.SECTIONS_OR_STRETCH, loc + ("sections",))
             out = ()
             for i, s in enumerate(subs):
                 out += sections(s, loc + ("sections", i))
             return out
         if t.length is None:
-            raise err("a trace needs its length", loc + ("length",))
+            raise err(M.TRACE_NEEDS_LENGTH, loc + ("length",))
         if t.part:
             try:
                 cable = library.get(t.part)
             except PinlibError as e:
-                raise err("unknown part", loc + ("part",), value=t.part, hint=e.hint) from None
+                raise err(M.UNKNOWN_PART, loc + ("part",), value=t.part, hint=e.hint) from None
             if cable.line is None:
-                raise err("the part is not a cable class (it has no [line] table)",
-                          loc + ("part",), value=t.part)
+                raise err(M.NOT_A_CABLE, loc + ("part",), value=t.part)
             return (Section(t.length, None, cable.line.capacitance.value,
                             cable.line.delay.value if cable.line.delay else None,
                             cable.line.impedance.value if cable.line.impedance else None,
                             t.part),)
         if t.geometry:
             if t.geometry not in geometries:
-                raise err("unknown geometry", loc + ("geometry",), value=t.geometry,
+                raise err(M.UNKNOWN_GEOMETRY, loc + ("geometry",), value=t.geometry,
                           hint="defined: " + (", ".join(geometries) or "none; add "
                                               "[board.geometry.NAME]"))
             if t.capacitance is not None or t.delay is not None:
-                raise err("give a geometry or per-length values, not both",
-                          loc + ("capacitance",))
+                raise err(M.GEOMETRY_OR_PER_LENGTH, loc + ("capacitance",))
             return (Section(t.length, geometries[t.geometry]),)
         if t.capacitance is None:
-            raise err("a trace needs a geometry or its capacitance per length",
-                      loc + ("geometry",), expected="geometry = \"NAME\" or capacitance = "
+            raise err(M.TRACE_NEEDS_GEOMETRY, loc + ("geometry",),
+                      expected="geometry = \"NAME\" or capacitance = "
                       "\"0.8 pF/cm\"")
         return (Section(t.length, None, t.capacitance, t.delay),)
 
@@ -479,10 +486,9 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
             try:
                 part = library.get(c.part)
             except PinlibError as e:
-                raise err("unknown part", loc + (i, "part"), value=c.part, hint=e.hint) from None
+                raise err(M.UNKNOWN_PART, loc + (i, "part"), value=c.part, hint=e.hint) from None
             if part.line is None:
-                raise err("the part is not a cable class (it has no [line] table)",
-                          loc + (i, "part"), value=c.part)
+                raise err(M.NOT_A_CABLE, loc + (i, "part"), value=c.part)
             out.append(Cable(c.part, part, c.length))
         return tuple(out)
 
@@ -491,18 +497,23 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
     for bi, rb in enumerate(raw.bus):
         bloc = ("bus", bi)
         if rb.id in ids:
-            raise err("two buses share one id", bloc + ("id",), value=rb.id)
+            raise err(M.DUPLICATE_BUS_ID, bloc + ("id",), value=rb.id)
         ids.add(rb.id)
         modes = MODES.get(rb.protocol)
         mode = rb.mode
         if modes:
             mode = mode or modes[1 if rb.protocol == "i2c" else 0]
             if mode not in modes:
-                raise err("unknown mode", bloc + ("mode",), value=rb.mode,
+                raise err(M.UNKNOWN_MODE, bloc + ("mode",), value=rb.mode,
                           expected="one of " + ", ".join(modes))
         elif rb.mode is not None:
-            raise err(f"a {rb.protocol} bus has no mode", bloc + ("mode",), value=rb.mode,
+            raise err(M.BUS_HAS_NO_MODE.format(protocol=rb.protocol), bloc + ("mode",),
+                      value=rb.mode,
                       hint="give its clock instead" if rb.protocol == "spi" else None)
+        if rb.clock is not None and not rb.clock > 0.0:
+            # Every engine divides by the clock (its period, its budget).
+            raise err(M.CLOCK_NOT_POSITIVE, bloc + ("clock",), value=format_si(rb.clock, "Hz"),
+                      expected='a clock such as "400 kHz"')
         if rb.protocol in ("i2c", "smbus"):
             bus = _open_drain_bus(rb, bloc, mode, device, sections, cables, err)
         else:
@@ -510,7 +521,7 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
         buses.append(bus)
     unknown = set(swaps) - swapped
     if unknown:
-        raise DesignError("no device with this reference", field="swap",
+        raise DesignError(M.NO_SUCH_REFERENCE, field="swap",
                           value=sorted(unknown)[0], file=fname)
     design = Design(raw.title, Path(path) if path else None, tuple(buses), geometries, library,
                     raw.warn_margin, raw.distribution, raw.description, text)
@@ -524,16 +535,16 @@ _SEGMENT_KEYS = ("supply", "supply_tolerance", "pullup", "pullup_tolerance", "pu
 
 def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bus:
     if rb.lines:
-        raise err("an open-drain bus has no per-signal lines", bloc + ("lines",),
+        raise err(M.OPEN_DRAIN_NO_LINES, bloc + ("lines",),
                   hint="give the bus (or each segment) a trace")
     raws = list(rb.segment)
     if raws and rb.devices:
-        raise err("devices go in the segments when a bus has segments", bloc + ("devices",))
+        raise err(M.DEVICES_IN_SEGMENTS, bloc + ("devices",))
     # Capacitance belongs to one stretch of bus: inherited by every segment it would be
     # counted once per segment.
     for key in ("trace", "cables", "extra_capacitance"):
         if raws and getattr(rb, key):
-            raise err(f"{key} goes in the segments when a bus has segments", bloc + (key,),
+            raise err(M.KEY_IN_SEGMENTS.format(key=key), bloc + (key,),
                       hint="give each [[bus.segment]] its own")
     if not raws:
         raws = [RawSegment(id=rb.id)]
@@ -554,17 +565,17 @@ def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bu
 
         supply = pick("supply")
         if supply is None:
-            raise err("a bus needs its pull-up supply", sloc + ("supply",),
+            raise err(M.BUS_NEEDS_PULLUP_SUPPLY, sloc + ("supply",),
                       expected="supply = \"3.3 V\"")
         if supply <= 0:
-            raise err("the supply must be positive", sloc + ("supply",), value=supply)
+            raise err(M.SUPPLY_NOT_POSITIVE, sloc + ("supply",), value=supply)
         devices = tuple(device(d, sloc + ("devices", i)) for i, d in enumerate(rs.devices))
         seg_id = rs.id or (rb.id if len(own) == 1 else f"{rb.id}-{si + 1}")
         cab = cables(rs.cables or (rb.cables if rs is not rb else ()), sloc + ("cables",))
         series = pick("pullup_series", "E24")
         from pinlib.eseries import SERIES_NAMES
         if series.upper() not in SERIES_NAMES:
-            raise err("unknown preferred-value series", sloc + ("pullup_series",), value=series,
+            raise err(M.UNKNOWN_SERIES, sloc + ("pullup_series",), value=series,
                       expected="one of " + ", ".join(SERIES_NAMES))
         segments.append(Segment(
             seg_id, supply, pick("supply_tolerance", 0.0), pick("pullup", "auto"),
@@ -574,19 +585,20 @@ def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bu
             sloc))
         all_devices.extend(devices)
     if not any(d.is_controller for d in all_devices):
-        raise err("a bus needs a controller", bloc + ("devices",),
+        raise err(M.BUS_NEEDS_CONTROLLER, bloc + ("devices",),
                   hint="mark one device role = \"controller\"")
     for seg in segments:
         for d in seg.devices:
             side = d.side
             if d.is_bridge and side is None:
-                raise err("a bridging part names its side in each segment", d.loc + ("side",),
+                raise err(M.BRIDGE_NEEDS_SIDE, d.loc + ("side",),
                           expected='side = "a" or "b"')
             if not d.is_bridge and side is not None:
-                raise err("only a bridging part has sides", d.loc + ("side",), value=side)
+                raise err(M.SIDE_ONLY_FOR_BRIDGE, d.loc + ("side",), value=side)
             for fn in ("i2c-sda", "i2c-scl"):
                 if d.part.pin_for(fn, side) is None:
-                    raise err(f"the part has no {fn} pin" + (f" on side {side}" if side else ""),
+                    raise err(M.PART_LACKS_PIN_ON_SIDE.format(function=fn, side=side) if side
+                              else M.PART_LACKS_PIN.format(function=fn),
                               d.loc + ("part",), value=d.part_id,
                               hint="an I2C/SMBus device needs SDA and SCL pins")
     bridges: dict[str, list[str]] = {}
@@ -597,8 +609,8 @@ def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bu
     for ref, sides in bridges.items():
         if sorted(sides) != ["a", "b"]:
             loc = next(d.loc for s in segments for d in s.devices if d.ref == ref)
-            raise err("a bridging part must appear in two segments, once per side",
-                      loc + ("ref",), value=ref, hint=f"found side(s): {', '.join(sides)}")
+            raise err(M.BRIDGE_IN_TWO_SEGMENTS, loc + ("ref",), value=ref,
+                      hint=f"found side(s): {', '.join(sides)}")
     return Bus(rb.id, rb.protocol, mode, rb.clock, segments[0].supply,
                segments[0].supply_tolerance, tuple(segments), tuple(all_devices), {},
                rb.spi_mode, rb.title, segments[0].capacitance_tolerance,
@@ -607,34 +619,35 @@ def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bu
 
 def _push_pull_bus(rb: RawBus, bloc, device, sections, err) -> Bus:
     if rb.segment:
-        raise err(f"a {rb.protocol} bus has no segments", bloc + ("segment",),
+        raise err(M.BUS_HAS_NO_SEGMENTS.format(protocol=rb.protocol), bloc + ("segment",),
                   hint="route each signal under lines.<signal>")
     for key in ("pullup", "pullup_tolerance", "pullup_series", "cables"):
         if getattr(rb, key):
-            raise err(f"a {rb.protocol} bus has no {key}", bloc + (key,))
+            raise err(M.BUS_HAS_NO_KEY.format(protocol=rb.protocol, key=key), bloc + (key,))
     if rb.supply is None:
-        raise err("a bus needs its supply", bloc + ("supply",), expected="supply = \"3.3 V\"")
+        raise err(M.BUS_NEEDS_SUPPLY, bloc + ("supply",), expected="supply = \"3.3 V\"")
     devices = tuple(device(d, bloc + ("devices", i)) for i, d in enumerate(rb.devices))
     if not any(d.is_controller for d in devices):
-        raise err("a bus needs a controller", bloc + ("devices",),
+        raise err(M.BUS_NEEDS_CONTROLLER, bloc + ("devices",),
                   hint="mark one device role = \"controller\"")
     lines = {}
     for sig, rt in rb.lines.items():
         loc = bloc + ("lines", sig)
         if rb.protocol == "spi" and sig not in SPI_SIGNALS:
-            raise err("unknown SPI signal", loc, value=sig, expected=", ".join(SPI_SIGNALS))
+            raise err(M.UNKNOWN_SPI_SIGNAL, loc, value=sig, expected=", ".join(SPI_SIGNALS))
         lines[sig] = Line(sig, sections(rt, loc), rt.series_resistor, rt.extra_capacitance, loc)
     if rb.protocol == "spi":
         if rb.clock is None:
-            raise err("an SPI bus needs its clock", bloc + ("clock",),
+            raise err(M.SPI_NEEDS_CLOCK, bloc + ("clock",),
                       expected="clock = \"25 MHz\"")
         for d in devices:
             needed = ("spi-sclk", "spi-copi", "spi-cs") if d.is_controller else ("spi-sclk",)
             for fn in needed:
                 if d.part.pin_for(fn, d.side) is None and not d.is_bridge:
-                    raise err(f"the part has no {fn} pin", d.loc + ("part",), value=d.part_id)
+                    raise err(M.PART_LACKS_PIN.format(function=fn), d.loc + ("part",),
+                              value=d.part_id)
         if "sclk" not in lines:
-            raise err("an SPI bus needs its SCLK routing", bloc + ("lines",),
+            raise err(M.SPI_NEEDS_SCLK, bloc + ("lines",),
                       expected='lines.sclk = { length = "8 cm", geometry = "..." }')
     return Bus(rb.id, rb.protocol, None, rb.clock, rb.supply, rb.supply_tolerance or 0.0, (),
                devices, lines, rb.spi_mode, rb.title, rb.capacitance_tolerance or 0.0,

@@ -29,6 +29,7 @@ from decimal import Decimal
 
 import numpy as np
 
+from pinlib import messages as M
 from pinlib.errors import UnitError
 
 __all__ = [
@@ -160,16 +161,16 @@ def parse(text: object, unit: str, *, field: str | None = None) -> float:
     if unit not in UNITS:
         raise ValueError(f"unknown expected unit {unit!r}")
     if isinstance(text, bool):
-        raise _fail(text, unit, field, "a yes/no value where a quantity belongs")
+        raise _fail(text, unit, field, M.YES_NO_AS_QUANTITY)
     if isinstance(text, (int, float)):
         _, example = UNITS[unit]
-        raise _fail(text, unit, field, "a bare number has no unit",
+        raise _fail(text, unit, field, M.BARE_NUMBER,
                     hint=f"write it as a string with its unit, e.g. \"{text} {example.split()[-1]}\"")
     if not isinstance(text, str):
-        raise _fail(text, unit, field, f"a {type(text).__name__} where a quantity belongs")
+        raise _fail(text, unit, field, M.TYPE_AS_QUANTITY.format(type=type(text).__name__))
     value = _parse_text(text, unit, field)
     if not math.isfinite(value):
-        raise _fail(text, unit, field, "not a finite number")
+        raise _fail(text, unit, field, M.NOT_FINITE)
     return value
 
 
@@ -191,28 +192,29 @@ def _parse_text(text: str, unit: str, field: str | None) -> float:
         if rest:
             got = _split_unit(rest)
             if got is None or got[0] != 1.0:
-                raise _fail(text, unit, field, f"unknown unit '{rest}'")
+                raise _fail(text, unit, field, M.UNKNOWN_UNIT.format(unit=rest))
             base = got[1]
         if letter == "R" and unit != "Ω":
-            raise _fail(text, unit, field, "the RKM code with R is for resistances")
+            raise _fail(text, unit, field, M.RKM_R_FOR_RESISTANCE)
         if base != unit:
-            raise _fail(text, unit, field, f"a value in {base} where {UNITS[unit][0]} belongs")
+            raise _fail(text, unit, field,
+                        M.WRONG_DIMENSION.format(unit=base, quantity=UNITS[unit][0]))
         return _scaled(f"{whole or '0'}.{frac or '0'}", scale)
     m = _PLAIN.match(text)
     if not m:
-        raise _fail(text, unit, field, "not a number with a unit")
+        raise _fail(text, unit, field, M.NOT_A_QUANTITY)
     number, rest = float(m.group(1)), m.group(2)
     if not rest:
         _, example = UNITS[unit]
-        raise _fail(text, unit, field, "a bare number has no unit",
+        raise _fail(text, unit, field, M.BARE_NUMBER,
                     hint=f"add the unit, e.g. \"{m.group(1)} {example.split()[-1]}\"")
     rest = rest.replace("·", "").replace(" ", "")
     got = _split_unit(rest)
     if got is None:
-        raise _fail(text, unit, field, f"unknown unit '{rest}'")
+        raise _fail(text, unit, field, M.UNKNOWN_UNIT.format(unit=rest))
     scale, base = got
     if base != unit:
-        raise _fail(text, unit, field, f"a value in {base} where {UNITS[unit][0]} belongs")
+        raise _fail(text, unit, field, M.WRONG_DIMENSION.format(unit=base, quantity=UNITS[unit][0]))
     if base == "%":
         return number / 100.0
     return _scaled(m.group(1), scale)
@@ -292,13 +294,13 @@ def parse_threshold(text: object, *, field: str | None = None) -> Threshold:
     expected = "a voltage ('2.0 V') or one relative to the supply ('0.7 VDD', 'VDD - 0.4 V')"
     if not isinstance(text, str):
         if isinstance(text, (int, float)) and not isinstance(text, bool):
-            raise UnitError("a bare number has no unit", field=field, value=text,
+            raise UnitError(M.BARE_NUMBER, field=field, value=text,
                             expected=expected, hint=f"write \"{text} V\" or \"{text} VDD\"")
-        raise UnitError(f"a {type(text).__name__} where a threshold belongs", field=field,
+        raise UnitError(M.TYPE_AS_THRESHOLD.format(type=type(text).__name__), field=field,
                         value=text, expected=expected)
     body = text.strip()
     if not body:
-        raise UnitError("an empty threshold", field=field, value=text, expected=expected)
+        raise UnitError(M.EMPTY_THRESHOLD, field=field, value=text, expected=expected)
     # Split into signed terms; a leading sign belongs to the first term.
     pieces = _TERM_SPLIT.split(body)
     terms: list[tuple[str, str]] = []
@@ -322,10 +324,10 @@ def parse_threshold(text: object, *, field: str | None = None) -> Threshold:
         try:
             offset += k * _parse_text(term, "V", field)
         except UnitError:
-            raise UnitError("not a voltage or a multiple of VDD", field=field, value=text,
+            raise UnitError(M.NOT_A_THRESHOLD, field=field, value=text,
                             expected=expected) from None
     if not (math.isfinite(scale) and math.isfinite(offset)):
-        raise UnitError("not a finite threshold", field=field, value=text, expected=expected)
+        raise UnitError(M.THRESHOLD_NOT_FINITE, field=field, value=text, expected=expected)
     return Threshold(scale, offset, body)
 
 
@@ -352,6 +354,13 @@ def format_si(value, unit: str, digits: int = 3) -> str:
         return _per_length(value, unit, digits)
     if value == 0.0:
         return f"0 {unit}".strip()
+    return _rendered(value, unit, digits)
+
+
+# The engines format the same limits and thresholds for every bus they check, and a
+# quantiphy render is most of the time of checking a large design: keep recent ones.
+@functools.lru_cache(maxsize=4096)
+def _rendered(value: float, unit: str, digits: int) -> str:
     q = _shown_quantity()(value, unit)
     text = q.render(prec=digits - 1, strip_zeros=True)
     # quantiphy puts no space between number and a bare unit with a prefix ("2.2kΩ"): add one.

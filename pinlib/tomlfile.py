@@ -19,6 +19,7 @@ import sys
 import tempfile
 from pathlib import Path
 
+from pinlib import messages as M
 from pinlib.errors import InputError, WriteError
 
 if sys.version_info >= (3, 11):
@@ -125,17 +126,17 @@ def load(path: str | os.PathLike, *, error=InputError) -> tuple[dict, str]:
     try:
         text = p.read_text(encoding="utf-8")
     except FileNotFoundError:
-        raise error("file not found", file=str(p)) from None
+        raise error(M.FILE_NOT_FOUND, file=str(p)) from None
     except UnicodeDecodeError as exc:
-        raise error("not UTF-8 text", file=str(p), hint=str(exc)) from None
+        raise error(M.NOT_UTF8, file=str(p), hint=str(exc)) from None
     except OSError as exc:
-        raise error(f"cannot read the file: {exc.strerror}", file=str(p)) from None
+        raise error(M.CANNOT_READ.format(reason=exc.strerror), file=str(p)) from None
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         msg = str(exc)
         m = re.search(r"line (\d+)", msg)
-        raise error(f"not valid TOML: {msg}", file=str(p),
+        raise error(M.NOT_TOML.format(detail=msg), file=str(p),
                     line=int(m.group(1)) if m else None) from None
     return data, text
 
@@ -152,7 +153,7 @@ def file_lock(target: str | os.PathLike):
     try:
         fd = os.open(lock_path, os.O_RDWR | os.O_CREAT, 0o644)
     except OSError as exc:
-        raise WriteError(f"cannot lock the file: {exc.strerror}", file=str(target)) from None
+        raise WriteError(M.CANNOT_LOCK.format(reason=exc.strerror), file=str(target)) from None
     try:
         try:
             import fcntl
@@ -167,30 +168,43 @@ def file_lock(target: str | os.PathLike):
         os.close(fd)
 
 
+def _umask() -> int:
+    mask = os.umask(0o022)
+    os.umask(mask)
+    return mask
+
+
 def atomic_write(path: str | os.PathLike, text: str) -> None:
     """Replace ``path`` with ``text`` atomically; on any failure the old file stays whole.
 
     The text goes to a temporary file in the same folder, is flushed and synced, takes
-    the old file's permission bits, and then replaces the old file in one step.
+    the old file's permission bits (a new file those of the umask), and then replaces the
+    old file in one step.
     """
     path = Path(path)
     folder = path.parent if str(path.parent) else Path(".")
     try:
         fd, tmp = tempfile.mkstemp(dir=folder, prefix=f".{path.name}.", suffix=".tmp")
     except OSError as exc:
-        raise WriteError(f"cannot write in this folder: {exc.strerror}", file=str(path)) from None
+        raise WriteError(M.CANNOT_WRITE_IN_FOLDER.format(reason=exc.strerror),
+                         file=str(path)) from None
     try:
         with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
             fh.write(text)
             fh.flush()
             os.fsync(fh.fileno())
-        with contextlib.suppress(FileNotFoundError):
-            os.chmod(tmp, os.stat(path).st_mode & 0o7777)
+        try:
+            mode = os.stat(path).st_mode & 0o7777
+        except FileNotFoundError:
+            # A new file: the mode any new file gets here.  mkstemp made the temporary
+            # file 0600, which would leave a team's new part readable by its writer only.
+            mode = 0o666 & ~_umask()
+        os.chmod(tmp, mode)
         os.replace(tmp, path)
     except OSError as exc:
         with contextlib.suppress(OSError):
             os.unlink(tmp)
-        raise WriteError(f"cannot write the file: {exc.strerror}", file=str(path)) from None
+        raise WriteError(M.CANNOT_WRITE_FILE.format(reason=exc.strerror), file=str(path)) from None
     except BaseException:
         with contextlib.suppress(OSError):
             os.unlink(tmp)

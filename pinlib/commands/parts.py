@@ -12,6 +12,7 @@ import os
 import sys
 from pathlib import Path
 
+from pinlib import messages as M
 from pinlib.errors import InputError
 
 __all__ = ["add_parser", "run"]
@@ -177,7 +178,7 @@ def _closest(word, choices) -> str | None:
 
 def _choice(value, choices, field):
     if value is not None and value not in choices:
-        raise InputError("not one of the allowed values", field=field, value=value,
+        raise InputError(M.NOT_ALLOWED_VALUE, field=field, value=value,
                          expected="one of " + ", ".join(choices), hint=_closest(value, choices))
 
 
@@ -435,7 +436,7 @@ def _default_folder(args) -> Path:
     env = [p for p in os.environ.get("PINLIB_LIBRARY", "").split(os.pathsep) if p]
     if env:
         return Path(env[0])
-    raise InputError("no folder to write the new part into", field="--into",
+    raise InputError(M.NO_FOLDER_FOR_NEW_PART, field="--into",
                      hint="give --into FOLDER, or a --library folder or PINLIB_LIBRARY")
 
 
@@ -493,7 +494,7 @@ def _run_check(args) -> int:
     else:
         folder = Path(args.folder)
         if not folder.is_dir():
-            raise InputError("not a folder", file=str(folder), field="FOLDER")
+            raise InputError(M.NOT_A_FOLDER, file=str(folder), field="FOLDER")
         lib = _load(args, extra=[folder])
         root = folder.resolve()
         problems = [p for p in lib.problems if p.file and _under(p.file, root)]
@@ -505,7 +506,7 @@ def _run_check(args) -> int:
                 continue
             chain = {str(lib.files[c].path) for c in lib.chain(pid)}
             related = [p for p in lib.problems if p.file in chain and p not in problems]
-            problems.append(LibraryError("the part does not load", file=str(pf.path),
+            problems.append(LibraryError(M.PART_DOES_NOT_LOAD, file=str(pf.path),
                                          field="extends", hint="a problem in a file it extends"))
             problems += related
         n_files = len({str(p) for p in folder.rglob("*.toml")})

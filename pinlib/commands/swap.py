@@ -17,6 +17,8 @@ import json
 import re
 import sys
 
+from pinlib import messages as M
+
 __all__ = ["add_parser", "run", "threshold_type", "parse_assignments"]
 
 EXAMPLES = """\
@@ -83,11 +85,11 @@ def parse_assignments(items) -> dict[str, str]:
     for item in items:
         m = _ASSIGN.match(item)
         if not m:
-            raise InputError("a substitution is REF=PART", field="REF=PART", value=item,
+            raise InputError(M.SUBSTITUTION_FORM, field="REF=PART", value=item,
                              expected="e.g. U4=eeprom-i2c (a part id: lowercase, digits, -)")
         ref, part = m.groups()
         if ref in out and out[ref] != part:
-            raise InputError("one reference substituted twice", field="REF=PART", value=ref,
+            raise InputError(M.SUBSTITUTED_TWICE, field="REF=PART", value=ref,
                              hint=f"{out[ref]} and {part}")
         out[ref] = part
     return out
@@ -103,7 +105,7 @@ def _refusals(design, swaps: dict[str, str]) -> list[dict]:
     for ref, part_id in swaps.items():
         places = [(b, d) for b in design.buses for d in b.devices if d.ref == ref]
         if not places:
-            raise DesignError("no device with this reference", file=str(design.path),
+            raise DesignError(M.NO_SUCH_REFERENCE, file=str(design.path),
                               field="REF=PART", value=ref,
                               hint="devices: " + ", ".join(refs))
         new_part = design.library.get(part_id, field="REF=PART")
@@ -193,8 +195,7 @@ def run(args) -> int:
         with file_lock(design.path):
             now = design.path.read_text(encoding="utf-8")
             if now != design.text:
-                raise WriteError("the design file changed while it was being evaluated; "
-                                 "nothing written", file=str(design.path),
+                raise WriteError(M.DESIGN_CHANGED_DURING_SWAP, file=str(design.path),
                                  hint="run the swap again")
             if text != design.text:
                 atomic_write(design.path, text)

@@ -18,6 +18,7 @@ from dataclasses import dataclass
 
 from pydantic import BaseModel, BeforeValidator
 
+from pinlib import messages as M
 from pinlib.errors import LibraryError, PinlibError
 from pinlib.library import schema
 from pinlib.library.values import Sourced
@@ -156,7 +157,7 @@ def resolve_path(text: str) -> tuple[tuple[str, ...], ValueKind]:
         When the path does not end at a field that takes a value.
     """
     if not isinstance(text, str) or not text.strip():
-        raise LibraryError("a field path is needed", field="field", value=text,
+        raise LibraryError(M.FIELD_PATH_NEEDED, field="field", value=text,
                            expected="PIN.FIELD, timing.FIELD or supply.min/max")
     parts = [p.strip() for p in text.strip().split(".")]
     model: type[BaseModel] = schema.Part
@@ -170,7 +171,7 @@ def resolve_path(text: str) -> tuple[tuple[str, ...], ValueKind]:
             parts.insert(i, "pins")  # shorthand: a pin name
             continue
         if key not in fields:
-            raise LibraryError("unknown field", field=".".join(path + [key]), value=text,
+            raise LibraryError(M.UNKNOWN_FIELD, field=".".join(path + [key]), value=text,
                                expected="one of " + ", ".join(
                                    n for n, f in fields.items() if value_kind(f)),
                                hint=_close(key, fields))
@@ -179,13 +180,13 @@ def resolve_path(text: str) -> tuple[tuple[str, ...], ValueKind]:
         kind = value_kind(info)
         if kind is not None:
             if i != len(parts) - 1:
-                raise LibraryError("a value field has no sub-fields", field=".".join(path),
+                raise LibraryError(M.VALUE_FIELD_NO_SUBFIELDS, field=".".join(path),
                                    value=text)
             return tuple(path), kind
         inner = mapping_of(info)
         if inner is not None:
             if i + 1 >= len(parts) or not parts[i + 1]:
-                raise LibraryError("the path stops at a table of named items",
+                raise LibraryError(M.PATH_STOPS_AT_NAMED_TABLE,
                                    field=".".join(path), value=text,
                                    expected=f"{key}.NAME.FIELD")
             path.append(parts[i + 1])
@@ -197,7 +198,7 @@ def resolve_path(text: str) -> tuple[tuple[str, ...], ValueKind]:
             continue
         what = "a list (edit the file by hand)" if sequence_of(info) else (
             "a table" if sub is not None else "not a value with a unit")
-        raise LibraryError(f"this field takes no recorded value: {what}", field=".".join(path),
+        raise LibraryError(M.FIELD_TAKES_NO_VALUE.format(what=what), field=".".join(path),
                            value=text, expected="a field such as c_in, v_il, timing.f_max")
-    raise LibraryError("the path stops before a field", field=".".join(path), value=text,
+    raise LibraryError(M.PATH_STOPS_BEFORE_FIELD, field=".".join(path), value=text,
                        expected="PIN.FIELD, timing.FIELD or supply.min/max")

@@ -21,6 +21,7 @@ from pathlib import Path
 
 from pydantic import BaseModel, ValidationError
 
+from pinlib import messages as M
 from pinlib.errors import LibraryError, PinlibError
 from pinlib.library.schema import FORMAT, Part
 from pinlib.library.values import Sourced
@@ -66,10 +67,10 @@ def read_part_file(path: Path, *, builtin: bool = False) -> PartFile:
     pf = PartFile(Path(path), raw, text, builtin)
     fmt = raw.get("format")
     if fmt != FORMAT:
-        raise LibraryError("not a part-class file", file=str(path), line=pf.line(("format",)),
+        raise LibraryError(M.NOT_A_PART_FILE, file=str(path), line=pf.line(("format",)),
                            field="format", value=fmt, expected=f'format = "{FORMAT}"')
     if not isinstance(raw.get("id"), str) or not raw["id"]:
-        raise LibraryError("a part file needs an id", file=str(path), line=pf.line(("id",)),
+        raise LibraryError(M.PART_NEEDS_ID, file=str(path), line=pf.line(("id",)),
                            field="id", expected="a lowercase id such as \"eeprom-i2c\"")
     return pf
 
@@ -90,11 +91,11 @@ def pydantic_errors(exc: ValidationError, *, file=None, locate=None, cls=Library
             continue
         kind = err.get("type", "")
         if kind == "extra_forbidden":
-            problem, expected = "unknown field", "a field of the part format (see 'pinlib parts schema')"
+            problem, expected = M.UNKNOWN_FIELD, "a field of the part format (see 'pinlib parts schema')"
         elif kind == "missing":
-            problem, expected = "a required field is missing", None
+            problem, expected = M.MISSING_FIELD, None
         elif kind == "literal_error":
-            problem = "not one of the allowed values"
+            problem = M.NOT_ALLOWED_VALUE
             expected = err.get("ctx", {}).get("expected")
         else:
             problem, expected = err.get("msg", "invalid").removeprefix("Value error, "), None
@@ -167,17 +168,28 @@ def validate_part(merged: dict, origin: dict, files: dict[str, PartFile]) -> Par
 def _with_origins(part: Part, origin: dict, own: str) -> Part:
     """Stamp every Sourced value with the part id whose file set it."""
 
+    # Only what holds a Sourced value is rebuilt; everything else is returned as it is
+    # (a part holds hundreds of None fields, and copying each model was most of the load
+    # time of a large library).
     def walk(obj, path):
+        if obj is None or isinstance(obj, (str, bool, int, float)):
+            return obj
         if isinstance(obj, Sourced):
             return obj.with_origin(_origin_of(origin, path) or own)
         if isinstance(obj, dict):
-            return {k: walk(v, path + (k,)) for k, v in obj.items()}
+            out = {k: walk(v, path + (k,)) for k, v in obj.items()}
+            return obj if all(out[k] is v for k, v in obj.items()) else out
         if isinstance(obj, tuple):
-            return tuple(walk(v, path + (i,)) for i, v in enumerate(obj))
+            out = tuple(walk(v, path + (i,)) for i, v in enumerate(obj))
+            return obj if all(a is b for a, b in zip(out, obj)) else out
         if isinstance(obj, BaseModel):
-            changes = {name: walk(getattr(obj, name), path + (name,))
-                       for name in type(obj).model_fields}
-            return obj.model_copy(update=changes)
+            changes = {}
+            for name in type(obj).model_fields:
+                value = getattr(obj, name)
+                new = walk(value, path + (name,))
+                if new is not value:
+                    changes[name] = new
+            return obj.model_copy(update=changes) if changes else obj
         return obj
 
     return walk(part, ())
@@ -218,7 +230,7 @@ class Library:
             "'pinlib parts list' shows the library"
         if broken:
             hint = f"its file has errors: {broken[0].message}"
-        raise LibraryError("unknown part", file=file, line=line, field=field, value=part_id,
+        raise LibraryError(M.UNKNOWN_PART, file=file, line=line, field=field, value=part_id,
                            hint=hint)
 
     def path_of(self, part_id: str) -> Path:
@@ -271,7 +283,7 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
     loaded: set[Path] = set()
     for folder, is_builtin in sources:
         if not folder.is_dir():
-            err = LibraryError("library folder not found", file=str(folder))
+            err = LibraryError(M.LIBRARY_FOLDER_NOT_FOUND, file=str(folder))
             if strict:
                 raise err
             lib.problems.append(err)
@@ -293,7 +305,7 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
                 continue
             pid = pf.id
             if not is_builtin and pid in team_seen and team_seen[pid] != path:
-                err = LibraryError("two team parts share one id", file=str(path),
+                err = LibraryError(M.DUPLICATE_TEAM_ID, file=str(path),
                                    line=pf.line(("id",)), field="id", value=pid,
                                    hint=f"the other is {team_seen[pid]}")
                 if strict:
@@ -301,7 +313,7 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
                 lib.problems.append(err)
                 continue
             if pid in found and found[pid].builtin and is_builtin:
-                err = LibraryError("two built-in parts share one id", file=str(path),
+                err = LibraryError(M.DUPLICATE_BUILTIN_ID, file=str(path),
                                    field="id", value=pid, hint=f"the other is {found[pid].path}")
                 lib.problems.append(err)
                 continue
@@ -338,17 +350,17 @@ def _merged_raw(pid: str, files: dict[str, PartFile], stack: list[str]):
         merged, origin = _merge({}, pf.raw, {}, pid)
         return merged, origin, [pid]
     if not isinstance(parent, str):
-        raise LibraryError("extends names a part id", file=str(pf.path),
+        raise LibraryError(M.EXTENDS_NOT_AN_ID, file=str(pf.path),
                            line=pf.line(("extends",)), field="extends", value=parent)
     if parent in stack + [pid]:
         cycle = " -> ".join(stack + [pid, parent])
-        raise LibraryError("an extends cycle", file=str(pf.path), line=pf.line(("extends",)),
+        raise LibraryError(M.EXTENDS_CYCLE, file=str(pf.path), line=pf.line(("extends",)),
                            field="extends", value=parent,
                            hint=f"{cycle}; files: " + ", ".join(
                                str(files[p].path) for p in stack + [pid] if p in files))
     if parent not in files:
         near = difflib.get_close_matches(parent, list(files), n=3, cutoff=0.4)
-        raise LibraryError("extends a part that is not in the library", file=str(pf.path),
+        raise LibraryError(M.EXTENDS_UNKNOWN, file=str(pf.path),
                            line=pf.line(("extends",)), field="extends", value=parent,
                            hint=("closest: " + ", ".join(near)) if near else None)
     base, base_origin, used = _merged_raw(parent, files, stack + [pid])

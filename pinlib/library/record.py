@@ -26,6 +26,7 @@ from pathlib import Path
 import tomlkit
 from tomlkit.items import InlineTable, Table
 
+from pinlib import messages as M
 from pinlib.errors import InputError, LibraryError, PinlibError, WriteError
 from pinlib.library import loader
 from pinlib.library.fields import resolve_path
@@ -57,13 +58,13 @@ def _inside_builtin(path: Path) -> bool:
 
 def _refuse_builtin(path: Path, what: str, hint: str) -> None:
     if _inside_builtin(path):
-        raise LibraryError(f"the built-in library is not written to ({what})", file=str(path),
+        raise LibraryError(M.BUILTIN_NOT_WRITTEN_BECAUSE.format(reason=what), file=str(path),
                            hint=hint)
 
 
 def _check_id(new_id: object) -> str:
     if not isinstance(new_id, str) or not _ID.match(new_id) or len(new_id) > 64:
-        raise LibraryError("not a valid part id", field="id", value=new_id,
+        raise LibraryError(M.INVALID_PART_ID, field="id", value=new_id,
                            expected="lowercase letters, digits and '-', starting with a letter "
                                     "or digit, at most 64 characters (e.g. 'eeprom-i2c-acme')")
     return new_id
@@ -108,22 +109,23 @@ def new_part(library: loader.Library, new_id: str, from_class: str,
     """
     _check_id(new_id)
     if new_id in library.files:
-        raise LibraryError("a part with this id exists", field="id", value=new_id,
+        raise LibraryError(M.PART_ID_EXISTS, field="id", value=new_id,
                            file=str(library.files[new_id].path),
                            hint="choose another id, or record values into that part")
     parent = library.get(from_class, field="extends")
     if basis not in RECORD_BASES + ("generic",):
-        raise InputError("unknown basis", field="basis", value=basis,
+        raise InputError(M.UNKNOWN_BASIS, field="basis", value=basis,
                          expected="one of " + ", ".join(RECORD_BASES + ("generic",)))
     folder = Path(into_folder)
     _refuse_builtin(folder, "a new part belongs in a team folder",
                     "name a team library folder with --into")
     if folder.exists() and not folder.is_dir():
-        raise WriteError("not a folder", file=str(folder))
+        raise WriteError(M.NOT_A_FOLDER, file=str(folder))
     try:
         folder.mkdir(parents=True, exist_ok=True)
     except OSError as exc:
-        raise WriteError(f"cannot create the folder: {exc.strerror}", file=str(folder)) from None
+        raise WriteError(M.CANNOT_CREATE_FOLDER.format(reason=exc.strerror),
+                         file=str(folder)) from None
     target = folder / f"{new_id}.toml"
     today = _dt.date.today()
     title = parent.title if title is None else title
@@ -144,7 +146,7 @@ def new_part(library: loader.Library, new_id: str, from_class: str,
     ])
     with file_lock(target):
         if target.exists():
-            raise LibraryError("the file exists", file=str(target),
+            raise LibraryError(M.FILE_EXISTS, file=str(target),
                                hint="choose another id or folder")
         _validate(library, new_id, target, text)
         atomic_write(target, text)
@@ -175,7 +177,7 @@ def _validate(library: loader.Library, part_id: str, path: Path, text: str,
             loader._resolve(child_id, files, {})
         except (loader._Many, LibraryError) as exc:
             first = exc.errors[0] if isinstance(exc, loader._Many) else exc
-            raise LibraryError(f"the value would break '{child_id}', which extends this part",
+            raise LibraryError(M.WOULD_BREAK_CHILD.format(child=child_id),
                                file=str(path), field=field, hint=first.message) from None
     return part
 
@@ -197,9 +199,9 @@ def _refusal(err: PinlibError, path: Path, field: str | None, old_text: str | No
         return err
     line = None if old_text is None else line_of(line_index(old_text), tuple(field.split(".")))
     if err.field == field:
-        return LibraryError(f"the value is refused: {err.problem}", file=str(path), line=line,
+        return LibraryError(M.VALUE_REFUSED.format(problem=err.problem), file=str(path), line=line,
                             field=field, value=err.value, expected=err.expected, hint=err.hint)
-    return LibraryError("the part would not validate with this value", file=str(path),
+    return LibraryError(M.PART_WOULD_NOT_VALIDATE, file=str(path),
                         line=line, field=field, hint=err.message)
 
 
@@ -276,7 +278,7 @@ def _set_path(doc, path: tuple[str, ...], item) -> None:
                 node[key] = _inline_with(child, path[depth + 1:], item)
                 return
             if not isinstance(child, (Table, dict)):
-                raise LibraryError("the file has a value where a table belongs",
+                raise LibraryError(M.VALUE_WHERE_TABLE,
                                    field=".".join(path[: depth + 1]), value=_plain(child))
             node = child
             continue
@@ -301,7 +303,7 @@ def _inline_with(table: InlineTable, rest: tuple[str, ...], item) -> InlineTable
     if inner is None:
         inner = tomlkit.parse("v = {}\n")["v"]
     elif not isinstance(inner, InlineTable):
-        raise LibraryError("the file has a value where a table belongs", field=key,
+        raise LibraryError(M.VALUE_WHERE_TABLE, field=key,
                            value=_plain(inner))
     return _rebuilt_inline(table, key, _inline_with(inner, rest[1:], item))
 
@@ -355,23 +357,23 @@ def record_value(library: loader.Library, part_id: str, field: str, value_text: 
     pf = library.files[part_id]
     path = pf.path
     if pf.builtin or _inside_builtin(path):
-        raise LibraryError("the built-in library is not written to", file=str(path),
+        raise LibraryError(M.BUILTIN_NOT_WRITTEN, file=str(path),
                            field="id", value=part_id,
                            hint=f"make a team part first: pinlib parts new {part_id}-v2 "
                                 f"--from {part_id} --into FOLDER")
     keys, _kind = resolve_path(field)
     dotted = ".".join(keys)
     if not isinstance(value_text, str) or not value_text.strip():
-        raise InputError("a value is needed", field=dotted, value=value_text,
+        raise InputError(M.VALUE_NEEDED, field=dotted, value=value_text,
                          expected="a value with its unit, e.g. '8 pF'")
     if not isinstance(source, str) or not source.strip():
-        raise InputError("every recorded value needs its source", field="source",
+        raise InputError(M.SOURCE_NEEDED, field="source",
                          expected="the document, revision and table, e.g. 'rev C, table 7.5'")
     if basis not in RECORD_BASES + ("generic",):
-        raise InputError("unknown basis", field="basis", value=basis,
+        raise InputError(M.UNKNOWN_BASIS, field="basis", value=basis,
                          expected="one of " + ", ".join(RECORD_BASES + ("generic",)))
     if typ is not None and not (isinstance(typ, str) and typ.strip()):
-        raise InputError("an empty typical value", field=f"{dotted}.typ", value=typ)
+        raise InputError(M.EMPTY_TYPICAL, field=f"{dotted}.typ", value=typ)
     item = _value_item(value_text.strip(), basis, source.strip(),
                        None if typ is None else typ.strip())
 
@@ -379,14 +381,15 @@ def record_value(library: loader.Library, part_id: str, field: str, value_text: 
         try:
             old_text = path.read_text(encoding="utf-8")
         except OSError as exc:
-            raise LibraryError(f"cannot read the file: {exc.strerror}", file=str(path)) from None
+            raise LibraryError(M.CANNOT_READ.format(reason=exc.strerror),
+                               file=str(path)) from None
         try:
             doc = tomlkit.parse(old_text)
             old_data = tomllib.loads(old_text)
         except (tomlkit.exceptions.TOMLKitError, tomllib.TOMLDecodeError) as exc:
-            raise LibraryError(f"not valid TOML: {exc}", file=str(path)) from None
+            raise LibraryError(M.NOT_TOML.format(detail=exc), file=str(path)) from None
         if old_data.get("id") != part_id or old_data.get("format") != FORMAT:
-            raise LibraryError("the file no longer holds this part", file=str(path),
+            raise LibraryError(M.FILE_NO_LONGER_HOLDS_PART, file=str(path),
                                field="id", value=old_data.get("id"), expected=part_id)
         _check_pin_exists(library, part_id, pf, old_data, keys)
         before = doc.as_string()
@@ -401,7 +404,7 @@ def record_value(library: loader.Library, part_id: str, field: str, value_text: 
         except tomllib.TOMLDecodeError:
             new_data = None
         if new_data != expected:
-            raise LibraryError("cannot set this value while keeping the file's layout",
+            raise LibraryError(M.CANNOT_KEEP_LAYOUT,
                                file=str(path), field=dotted,
                                hint=f"write it by hand: {dotted.split('.')[-1]} = "
                                     f"{item.as_string()}")
@@ -427,7 +430,7 @@ def _check_pin_exists(library, part_id, pf, data, keys) -> None:
         node = node.get(key, {}) if isinstance(node, dict) else {}
     if not isinstance(node, dict) or pin not in node:
         names = ", ".join(sorted(node)) if isinstance(node, dict) and node else "none"
-        raise LibraryError("the part has no such pin", field=".".join(keys[: at + 2]),
+        raise LibraryError(M.NO_SUCH_PIN, field=".".join(keys[: at + 2]),
                            value=pin, expected=f"one of its pins ({names})",
                            hint="a new pin needs its function: add its table to the file by hand")
 

@@ -36,6 +36,7 @@ from typing import Annotated, Literal
 
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, field_validator, model_validator
 
+from pinlib import messages as M
 from pinlib.library.values import Sourced, sourced_parser, threshold_parser
 
 __all__ = [
@@ -99,7 +100,7 @@ class Edge(_Model):
         # An after-validator, so it also runs when neither key is given (defaults are
         # not validated field by field).
         if self.rise is None and self.fall is None:
-            raise ValueError("an edge point needs rise or fall (or both)")
+            raise ValueError(M.EDGE_NEEDS_RISE_OR_FALL)
         return self
 
 
@@ -160,7 +161,7 @@ class Supply(_Model):
     def _ordered(cls, v, info):
         lo = info.data.get("min")
         if lo is not None and v.value < lo.value:
-            raise ValueError(f"supply max {v.text} is below min {lo.text}")
+            raise ValueError(M.SUPPLY_MAX_BELOW_MIN.format(max=v.text, min=lo.text))
         return v
 
 
@@ -219,7 +220,7 @@ class Part(_Model):
     @classmethod
     def _both_sides(cls, v):
         if v and set(v) != {"a", "b"}:
-            raise ValueError("a bridging part describes both sides, [sides.a] and [sides.b]")
+            raise ValueError(M.BRIDGE_BOTH_SIDES)
         return v
 
     def functions(self) -> set[str]:

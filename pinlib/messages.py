@@ -1,0 +1,169 @@
+"""Every problem a user can meet, in one place.
+
+Each constant is the ``problem`` of a :class:`~pinlib.errors.PinlibError`: the words
+that say what is wrong.  The error adds where (file, line, field), the value that was
+given, what was expected and a hint, so these texts stay short and need no location.
+A constant with ``{placeholders}`` is a template, filled with ``str.format``::
+
+    raise DesignError(messages.BUS_HAS_NO_MODE.format(protocol="spi"), ...)
+
+``tests/test_messages.py`` triggers each of them once and checks the text.
+
+Not converted yet (they still write their texts where they raise): the engines
+(``pinlib/buses/*``, ``pinlib/physics/*``), ``pinlib/standards/*``, ``pinlib/eseries.py``,
+``pinlib/compare.py``, ``pinlib/candidates.py``, ``pinlib/whatif.py``,
+``pinlib/review.py``, ``pinlib/plotdata.py``, ``pinlib/charts.py``, ``pinlib/widgets.py``
+and the commands ``check``, ``report`` and ``candidates``.  Texts that pydantic writes
+itself for a value of the wrong type (``Input should be a valid string``) are passed
+through in pydantic's words.  Two ``ValueError`` texts of the converted modules are not
+here because no file or command line reaches them, only a program calling pinlib
+wrongly: ``parse`` with an unknown expected unit, and ``Sourced.at`` of a relative
+threshold without a supply.
+"""
+
+from __future__ import annotations
+
+__all__ = ["MODULES", "all_messages"]
+
+# ---------------------------------------------------------------- shared by several modules
+NEGATIVE_VALUE = "a negative value"
+OUTSIDE_RANGE = "outside the plausible range"
+UNKNOWN_PART = "unknown part"
+UNKNOWN_FIELD = "unknown field"
+MISSING_FIELD = "a required field is missing"
+NOT_ALLOWED_VALUE = "not one of the allowed values"
+UNKNOWN_BASIS = "unknown basis"
+NOT_A_FOLDER = "not a folder"
+NO_SUCH_REFERENCE = "no device with this reference"
+
+# ---------------------------------------------------------------- pinlib/tomlfile.py
+FILE_NOT_FOUND = "file not found"
+NOT_UTF8 = "not UTF-8 text"
+CANNOT_READ = "cannot read the file: {reason}"
+NOT_TOML = "not valid TOML: {detail}"
+CANNOT_LOCK = "cannot lock the file: {reason}"
+CANNOT_WRITE_IN_FOLDER = "cannot write in this folder: {reason}"
+CANNOT_WRITE_FILE = "cannot write the file: {reason}"
+
+# ---------------------------------------------------------------- pinlib/quantity.py
+YES_NO_AS_QUANTITY = "a yes/no value where a quantity belongs"
+BARE_NUMBER = "a bare number has no unit"
+TYPE_AS_QUANTITY = "a {type} where a quantity belongs"
+NOT_FINITE = "not a finite number"
+UNKNOWN_UNIT = "unknown unit '{unit}'"
+RKM_R_FOR_RESISTANCE = "the RKM code with R is for resistances"
+WRONG_DIMENSION = "a value in {unit} where {quantity} belongs"
+NOT_A_QUANTITY = "not a number with a unit"
+TYPE_AS_THRESHOLD = "a {type} where a threshold belongs"
+EMPTY_THRESHOLD = "an empty threshold"
+NOT_A_THRESHOLD = "not a voltage or a multiple of VDD"
+THRESHOLD_NOT_FINITE = "not a finite threshold"
+
+# ---------------------------------------------------------------- pinlib/library/
+# loader.py
+NOT_A_PART_FILE = "not a part-class file"
+PART_NEEDS_ID = "a part file needs an id"
+LIBRARY_FOLDER_NOT_FOUND = "library folder not found"
+DUPLICATE_TEAM_ID = "two team parts share one id"
+DUPLICATE_BUILTIN_ID = "two built-in parts share one id"
+EXTENDS_NOT_AN_ID = "extends names a part id"
+EXTENDS_CYCLE = "an extends cycle"
+EXTENDS_UNKNOWN = "extends a part that is not in the library"
+# schema.py (pydantic validators: the loader removes pydantic's "Value error, ")
+EDGE_NEEDS_RISE_OR_FALL = "an edge point needs rise or fall (or both)"
+SUPPLY_MAX_BELOW_MIN = "supply max {max} is below min {min}"
+BRIDGE_BOTH_SIDES = "a bridging part describes both sides, [sides.a] and [sides.b]"
+# values.py
+VALUE_TABLE_UNKNOWN_KEY = "unknown key '{key}' in a value table"
+VALUE_TABLE_WITHOUT_VALUE = "a value table without 'value'"
+SOURCE_NOT_TEXT = "a source must be text"
+# fields.py
+FIELD_PATH_NEEDED = "a field path is needed"
+VALUE_FIELD_NO_SUBFIELDS = "a value field has no sub-fields"
+PATH_STOPS_AT_NAMED_TABLE = "the path stops at a table of named items"
+FIELD_TAKES_NO_VALUE = "this field takes no recorded value: {what}"
+PATH_STOPS_BEFORE_FIELD = "the path stops before a field"
+# record.py
+BUILTIN_NOT_WRITTEN = "the built-in library is not written to"
+BUILTIN_NOT_WRITTEN_BECAUSE = "the built-in library is not written to ({reason})"
+INVALID_PART_ID = "not a valid part id"
+PART_ID_EXISTS = "a part with this id exists"
+CANNOT_CREATE_FOLDER = "cannot create the folder: {reason}"
+FILE_EXISTS = "the file exists"
+WOULD_BREAK_CHILD = "the value would break '{child}', which extends this part"
+VALUE_REFUSED = "the value is refused: {problem}"
+PART_WOULD_NOT_VALIDATE = "the part would not validate with this value"
+VALUE_WHERE_TABLE = "the file has a value where a table belongs"
+VALUE_NEEDED = "a value is needed"
+SOURCE_NEEDED = "every recorded value needs its source"
+EMPTY_TYPICAL = "an empty typical value"
+FILE_NO_LONGER_HOLDS_PART = "the file no longer holds this part"
+CANNOT_KEEP_LAYOUT = "cannot set this value while keeping the file's layout"
+NO_SUCH_PIN = "the part has no such pin"
+
+# ---------------------------------------------------------------- pinlib/design.py
+NOT_A_DESIGN = "not a design file"
+DESIGN_LIBRARY_MISSING = "a library folder named by the design does not exist"
+MICROSTRIP_NEEDS_HEIGHT = "a microstrip needs its height above the plane"
+STRIPLINE_NEEDS_SPACING = "a stripline needs spacing (plane to plane) or height (to each plane)"
+ABSTRACT_ON_BOARD = "an abstract class cannot be placed on a board"
+CABLE_AS_DEVICE = "a cable class belongs in `cables` or a line's sections"
+SECTIONS_OR_STRETCH = "give either sections or one stretch (length, geometry...), not both"
+TRACE_NEEDS_LENGTH = "a trace needs its length"
+NOT_A_CABLE = "the part is not a cable class (it has no [line] table)"
+UNKNOWN_GEOMETRY = "unknown geometry"
+GEOMETRY_OR_PER_LENGTH = "give a geometry or per-length values, not both"
+TRACE_NEEDS_GEOMETRY = "a trace needs a geometry or its capacitance per length"
+DUPLICATE_BUS_ID = "two buses share one id"
+UNKNOWN_MODE = "unknown mode"
+BUS_HAS_NO_MODE = "a {protocol} bus has no mode"
+CLOCK_NOT_POSITIVE = "the clock must be above zero"
+OPEN_DRAIN_NO_LINES = "an open-drain bus has no per-signal lines"
+DEVICES_IN_SEGMENTS = "devices go in the segments when a bus has segments"
+KEY_IN_SEGMENTS = "{key} goes in the segments when a bus has segments"
+BUS_NEEDS_PULLUP_SUPPLY = "a bus needs its pull-up supply"
+SUPPLY_NOT_POSITIVE = "the supply must be positive"
+UNKNOWN_SERIES = "unknown preferred-value series"
+BUS_NEEDS_CONTROLLER = "a bus needs a controller"
+BRIDGE_NEEDS_SIDE = "a bridging part names its side in each segment"
+SIDE_ONLY_FOR_BRIDGE = "only a bridging part has sides"
+PART_LACKS_PIN = "the part has no {function} pin"
+PART_LACKS_PIN_ON_SIDE = "the part has no {function} pin on side {side}"
+BRIDGE_IN_TWO_SEGMENTS = "a bridging part must appear in two segments, once per side"
+BUS_HAS_NO_SEGMENTS = "a {protocol} bus has no segments"
+BUS_HAS_NO_KEY = "a {protocol} bus has no {key}"
+BUS_NEEDS_SUPPLY = "a bus needs its supply"
+UNKNOWN_SPI_SIGNAL = "unknown SPI signal"
+SPI_NEEDS_CLOCK = "an SPI bus needs its clock"
+SPI_NEEDS_SCLK = "an SPI bus needs its SCLK routing"
+
+# ---------------------------------------------------------------- pinlib/commands/
+NO_FOLDER_FOR_NEW_PART = "no folder to write the new part into"
+PART_DOES_NOT_LOAD = "the part does not load"
+SUBSTITUTION_FORM = "a substitution is REF=PART"
+SUBSTITUTED_TWICE = "one reference substituted twice"
+DESIGN_CHANGED_DURING_SWAP = ("the design file changed while it was being evaluated; "
+                              "nothing written")
+
+#: The modules whose raise sites take their texts from here.
+MODULES = (
+    "pinlib.tomlfile",
+    "pinlib.quantity",
+    "pinlib.library.loader",
+    "pinlib.library.schema",
+    "pinlib.library.values",
+    "pinlib.library.fields",
+    "pinlib.library.record",
+    "pinlib.design",
+    "pinlib.commands.parts",
+    "pinlib.commands.swap",
+)
+
+
+def all_messages() -> dict[str, str]:
+    """Every message constant of this module, by name."""
+    return {name: value for name, value in globals().items()
+            if name.isupper() and isinstance(value, str)}
+
+
+__all__ += sorted(all_messages())

@@ -1,0 +1,829 @@
+"""Every message of :mod:`pinlib.messages` triggered once, through the code a user runs.
+
+Each case builds the input that meets one problem (a design or part file, a call, a
+command line), catches the :class:`~pinlib.errors.PinlibError` and checks that its
+``problem`` is the listed text, filled in where the text is a template.  A last test
+checks that every constant of the module has its case here, so a new message cannot
+be added without a test that meets it.
+"""
+
+from __future__ import annotations
+
+import errno
+import json
+import os
+import textwrap
+from pathlib import Path
+
+import pytest
+
+from pinlib import messages as M
+from pinlib.cli import main
+from pinlib.design import load_design
+from pinlib.errors import PinlibError
+from pinlib.library import loader
+from pinlib.library import record as rec
+from pinlib.library.fields import resolve_path
+from pinlib.library.loader import load_library
+from pinlib.quantity import parse, parse_threshold
+from pinlib.tomlfile import atomic_write, file_lock, tomllib
+from pinlib.tomlfile import load as load_toml
+
+HEAD = """\
+format = "pinlib.design/1"
+title = "messages"
+
+[board.geometry.g]
+kind = "microstrip"
+width = "0.2 mm"
+height = "0.18 mm"
+er = 4.2
+"""
+
+I2C_BUS = """
+[[bus]]
+id = "b"
+protocol = "i2c"
+supply = "3.3 V"
+trace = { length = "5 cm", geometry = "g" }
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "eeprom-i2c" },
+]
+"""
+
+SPI_BUS = """
+[[bus]]
+id = "s"
+protocol = "spi"
+clock = "10 MHz"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U7", part = "nor-flash-spi" },
+]
+lines.sclk = { length = "3 cm", geometry = "g" }
+"""
+
+PART = """\
+format = "pinlib.part/1"
+id = "{id}"
+title = "Team target"
+category = "sensor"
+supply = {{ min = "1.7 V", max = "5.5 V" }}
+
+[pins.sda]
+function = "i2c-sda"
+drive = "open-drain"
+c_in = "8 pF"
+
+[pins.scl]
+function = "i2c-scl"
+c_in = "8 pF"
+"""
+
+
+class Env:
+    """A temporary folder with helpers that run pinlib on files written there."""
+
+    def __init__(self, tmp: Path, monkeypatch, capsys):
+        self.tmp = tmp
+        self.monkeypatch = monkeypatch
+        self.capsys = capsys
+        monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+
+    def write(self, name: str, text: str) -> Path:
+        path = self.tmp / name
+        path.parent.mkdir(parents=True, exist_ok=True)
+        path.write_text(textwrap.dedent(text), encoding="utf-8")
+        return path
+
+    def design(self, body: str, head: str = HEAD, **kw):
+        return load_design(self.write("design.toml", head + body), **kw)
+
+    def part(self, text: str, name: str = "p", folder: str = "team"):
+        self.write(f"{folder}/{name}.toml", text)
+        return load_library([self.tmp / folder], env=False, strict=True)
+
+    def team(self, *names: str, folder: str = "team"):
+        for n in names:
+            self.write(f"{folder}/{n}.toml", PART.format(id=n))
+        return load_library([self.tmp / folder], env=False)
+
+    def cli(self, *argv: str) -> str:
+        code = main(list(argv))
+        err = self.capsys.readouterr().err
+        assert code == 2, err
+        return err
+
+
+def _fails(func, env):
+    with pytest.raises(PinlibError) as info:
+        func(env)
+    return info.value
+
+
+# Each case: (constant name, the expected problem text, a function that meets it).  The
+# function returns either the PinlibError it caught or the text of a message printed by
+# the command line.
+CASES = []
+
+
+def case(name, expected=None):
+    def register(func):
+        CASES.append(pytest.param(name, expected, func, id=name))
+        return func
+    return register
+
+
+# ---------------------------------------------------------------- tomlfile
+@case("FILE_NOT_FOUND")
+def _(env):
+    return _fails(lambda e: load_design(e.tmp / "none.toml"), env)
+
+
+@case("NOT_UTF8")
+def _(env):
+    (env.tmp / "bad.toml").write_bytes(b"title = \"\xff\"\n")
+    return _fails(lambda e: load_design(e.tmp / "bad.toml"), env)
+
+
+@case("CANNOT_READ", M.CANNOT_READ.format(reason=os.strerror(errno.EISDIR)))
+def _(env):
+    (env.tmp / "folder.toml").mkdir()
+    return _fails(lambda e: load_design(e.tmp / "folder.toml"), env)
+
+
+def _toml_detail(text: str) -> str:
+    try:
+        tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        return str(exc)
+    raise AssertionError("the text parses")
+
+
+@case("NOT_TOML", M.NOT_TOML.format(detail=_toml_detail("title = \n")))
+def _(env):
+    return _fails(lambda e: load_toml(e.write("broken.toml", "title = \n")), env)
+
+
+@case("CANNOT_LOCK", M.CANNOT_LOCK.format(reason=os.strerror(errno.ENOENT)))
+def _(env):
+    def lock(e):
+        with file_lock(e.tmp / "missing-folder" / "x.toml"):
+            pass
+    return _fails(lock, env)
+
+
+@case("CANNOT_WRITE_IN_FOLDER", M.CANNOT_WRITE_IN_FOLDER.format(reason=os.strerror(errno.ENOENT)))
+def _(env):
+    return _fails(lambda e: atomic_write(e.tmp / "missing-folder" / "x.toml", "x = 1\n"), env)
+
+
+@case("CANNOT_WRITE_FILE", M.CANNOT_WRITE_FILE.format(reason=os.strerror(errno.EACCES)))
+def _(env):
+    def refuse(src, dst):
+        raise PermissionError(errno.EACCES, os.strerror(errno.EACCES), str(dst))
+
+    env.monkeypatch.setattr(os, "replace", refuse)
+    return _fails(lambda e: atomic_write(e.tmp / "x.toml", "x = 1\n"), env)
+
+
+# ---------------------------------------------------------------- quantity
+@case("YES_NO_AS_QUANTITY")
+def _(env):
+    return _fails(lambda e: parse(True, "F"), env)
+
+
+@case("BARE_NUMBER")
+def _(env):
+    return _fails(lambda e: parse(8, "F"), env)
+
+
+@case("TYPE_AS_QUANTITY", M.TYPE_AS_QUANTITY.format(type="list"))
+def _(env):
+    return _fails(lambda e: parse(["8 pF"], "F"), env)
+
+
+@case("NOT_FINITE")
+def _(env):
+    return _fails(lambda e: parse("1e999 pF", "F"), env)
+
+
+@case("UNKNOWN_UNIT", M.UNKNOWN_UNIT.format(unit="pX"))
+def _(env):
+    return _fails(lambda e: parse("8 pX", "F"), env)
+
+
+@case("RKM_R_FOR_RESISTANCE")
+def _(env):
+    return _fails(lambda e: parse("2R2", "F"), env)
+
+
+@case("WRONG_DIMENSION", M.WRONG_DIMENSION.format(unit="H", quantity="a capacitance"))
+def _(env):
+    return _fails(lambda e: parse("10 pH", "F"), env)
+
+
+@case("NOT_A_QUANTITY")
+def _(env):
+    return _fails(lambda e: parse("eight picofarads", "F"), env)
+
+
+@case("TYPE_AS_THRESHOLD", M.TYPE_AS_THRESHOLD.format(type="list"))
+def _(env):
+    return _fails(lambda e: parse_threshold(["0.7 VDD"]), env)
+
+
+@case("EMPTY_THRESHOLD")
+def _(env):
+    return _fails(lambda e: parse_threshold("   "), env)
+
+
+@case("NOT_A_THRESHOLD")
+def _(env):
+    return _fails(lambda e: parse_threshold("0.7 VCC"), env)
+
+
+@case("THRESHOLD_NOT_FINITE")
+def _(env):
+    return _fails(lambda e: parse_threshold("1e308 VDD + 1e308 VDD"), env)
+
+
+# ---------------------------------------------------------------- library: loader
+@case("NOT_A_PART_FILE")
+def _(env):
+    return _fails(lambda e: e.part('format = "pinlib.part/9"\nid = "p"\n'), env)
+
+
+@case("PART_NEEDS_ID")
+def _(env):
+    return _fails(lambda e: e.part('format = "pinlib.part/1"\ntitle = "no id"\n'), env)
+
+
+@case("UNKNOWN_FIELD")
+def _(env):
+    return _fails(lambda e: e.part(PART.format(id="p").replace(
+        'category = "sensor"\n', 'category = "sensor"\ncolour = "red"\n')), env)
+
+
+@case("MISSING_FIELD")
+def _(env):
+    return _fails(lambda e: e.part(PART.format(id="p").replace('title = "Team target"\n', "")),
+                  env)
+
+
+@case("NOT_ALLOWED_VALUE")
+def _(env):
+    return _fails(lambda e: e.part(PART.format(id="p").replace('"sensor"', '"toaster"')), env)
+
+
+@case("LIBRARY_FOLDER_NOT_FOUND")
+def _(env):
+    return _fails(lambda e: load_library([e.tmp / "none"], env=False, strict=True), env)
+
+
+@case("DUPLICATE_TEAM_ID")
+def _(env):
+    env.write("team/first.toml", PART.format(id="same"))
+    env.write("team/second.toml", PART.format(id="same"))
+    return _fails(lambda e: load_library([e.tmp / "team"], env=False, strict=True), env)
+
+
+@case("DUPLICATE_BUILTIN_ID")
+def _(env):
+    env.write("builtin/a.toml", PART.format(id="same"))
+    env.write("builtin/b.toml", PART.format(id="same"))
+    env.monkeypatch.setattr(loader, "BUILTIN_DIR", env.tmp / "builtin")
+    problems = load_library(env=False).problems
+    assert len(problems) == 1
+    return problems[0]
+
+
+@case("EXTENDS_NOT_AN_ID")
+def _(env):
+    return _fails(lambda e: e.part('format = "pinlib.part/1"\nid = "p"\nextends = 3\n'), env)
+
+
+@case("EXTENDS_CYCLE")
+def _(env):
+    env.write("team/a.toml", 'format = "pinlib.part/1"\nid = "a"\nextends = "b"\n')
+    env.write("team/b.toml", 'format = "pinlib.part/1"\nid = "b"\nextends = "a"\n')
+    return _fails(lambda e: load_library([e.tmp / "team"], env=False, strict=True), env)
+
+
+@case("EXTENDS_UNKNOWN")
+def _(env):
+    return _fails(lambda e: e.part('format = "pinlib.part/1"\nid = "p"\nextends = "nothing"\n'),
+                  env)
+
+
+@case("UNKNOWN_PART")
+def _(env):
+    return _fails(lambda e: load_library(env=False).get("no-such-part"), env)
+
+
+# ---------------------------------------------------------------- library: schema and values
+def _pin_value(text: str) -> str:
+    return PART.format(id="p").replace('c_in = "8 pF"\n', f"c_in = {text}\n", 1)
+
+
+@case("EDGE_NEEDS_RISE_OR_FALL")
+def _(env):
+    return _fails(lambda e: e.part(_pin_value('"8 pF"\nedges = [{ load = "15 pF" }]')), env)
+
+
+@case("SUPPLY_MAX_BELOW_MIN", M.SUPPLY_MAX_BELOW_MIN.format(max="2 V", min="3 V"))
+def _(env):
+    return _fails(lambda e: e.part(PART.format(id="p").replace(
+        'supply = { min = "1.7 V", max = "5.5 V" }', 'supply = { min = "3 V", max = "2 V" }')),
+        env)
+
+
+@case("BRIDGE_BOTH_SIDES")
+def _(env):
+    return _fails(lambda e: e.part(PART.format(id="p") + '\n[sides.a]\nlow_offset = "0.1 V"\n'),
+                  env)
+
+
+@case("VALUE_TABLE_UNKNOWN_KEY", M.VALUE_TABLE_UNKNOWN_KEY.format(key="colour"))
+def _(env):
+    return _fails(lambda e: e.part(_pin_value('{ value = "8 pF", colour = "red" }')), env)
+
+
+@case("VALUE_TABLE_WITHOUT_VALUE")
+def _(env):
+    return _fails(lambda e: e.part(_pin_value('{ source = "rev A" }')), env)
+
+
+@case("UNKNOWN_BASIS")
+def _(env):
+    return _fails(lambda e: e.part(_pin_value('{ value = "8 pF", basis = "hearsay" }')), env)
+
+
+@case("SOURCE_NOT_TEXT")
+def _(env):
+    return _fails(lambda e: e.part(_pin_value('{ value = "8 pF", source = 7 }')), env)
+
+
+@case("NEGATIVE_VALUE")
+def _(env):
+    return _fails(lambda e: e.part(_pin_value('"-8 pF"')), env)
+
+
+@case("OUTSIDE_RANGE")
+def _(env):
+    return _fails(lambda e: e.part(_pin_value('"1 F"')), env)
+
+
+# ---------------------------------------------------------------- library: field paths
+@case("FIELD_PATH_NEEDED")
+def _(env):
+    return _fails(lambda e: resolve_path(" "), env)
+
+
+@case("VALUE_FIELD_NO_SUBFIELDS")
+def _(env):
+    return _fails(lambda e: resolve_path("sda.c_in.max"), env)
+
+
+@case("PATH_STOPS_AT_NAMED_TABLE")
+def _(env):
+    return _fails(lambda e: resolve_path("pins"), env)
+
+
+@case("FIELD_TAKES_NO_VALUE", M.FIELD_TAKES_NO_VALUE.format(what="not a value with a unit"))
+def _(env):
+    return _fails(lambda e: resolve_path("sda.function"), env)
+
+
+@case("PATH_STOPS_BEFORE_FIELD")
+def _(env):
+    return _fails(lambda e: resolve_path("sides.a"), env)
+
+
+# ---------------------------------------------------------------- library: recording
+@case("BUILTIN_NOT_WRITTEN")
+def _(env):
+    lib = load_library(env=False)
+    return _fails(lambda e: rec.record_value(lib, "eeprom-i2c", "sda.c_in", "9 pF", "rev A"), env)
+
+
+@case("BUILTIN_NOT_WRITTEN_BECAUSE",
+      M.BUILTIN_NOT_WRITTEN_BECAUSE.format(reason="a new part belongs in a team folder"))
+def _(env):
+    lib = load_library(env=False)
+    return _fails(lambda e: rec.new_part(lib, "fresh", "eeprom-i2c", loader.BUILTIN_DIR), env)
+
+
+@case("INVALID_PART_ID")
+def _(env):
+    lib = load_library(env=False)
+    return _fails(lambda e: rec.new_part(lib, "Fresh Part", "eeprom-i2c", e.tmp / "team"), env)
+
+
+@case("PART_ID_EXISTS")
+def _(env):
+    lib = load_library(env=False)
+    return _fails(lambda e: rec.new_part(lib, "eeprom-i2c", "eeprom-i2c", e.tmp / "team"), env)
+
+
+@case("NOT_A_FOLDER")
+def _(env):
+    lib = load_library(env=False)
+    plain = env.write("plain-file", "x")
+    return _fails(lambda e: rec.new_part(lib, "fresh", "eeprom-i2c", plain), env)
+
+
+@case("CANNOT_CREATE_FOLDER", M.CANNOT_CREATE_FOLDER.format(reason=os.strerror(errno.ENOTDIR)))
+def _(env):
+    lib = load_library(env=False)
+    plain = env.write("plain-file", "x")
+    return _fails(lambda e: rec.new_part(lib, "fresh", "eeprom-i2c", plain / "sub"), env)
+
+
+@case("FILE_EXISTS")
+def _(env):
+    lib = load_library(env=False)
+    env.write("elsewhere/fresh.toml", "# not loaded\n")
+    return _fails(lambda e: rec.new_part(lib, "fresh", "eeprom-i2c", e.tmp / "elsewhere"), env)
+
+
+@case("WOULD_BREAK_CHILD", M.WOULD_BREAK_CHILD.format(child="q"))
+def _(env):
+    env.write("team/q.toml", 'format = "pinlib.part/1"\nid = "q"\nextends = "p"\n'
+                             'supply = { min = "1.8 V" }\n')
+    lib = env.team("p")
+    return _fails(lambda e: rec.record_value(lib, "p", "supply.max", "1.75 V", "rev A"), env)
+
+
+@case("VALUE_REFUSED", M.VALUE_REFUSED.format(
+    problem=M.WRONG_DIMENSION.format(unit="H", quantity="a capacitance")))
+def _(env):
+    lib = env.team("p")
+    return _fails(lambda e: rec.record_value(lib, "p", "sda.c_in", "10 pH", "rev A"), env)
+
+
+@case("PART_WOULD_NOT_VALIDATE")
+def _(env):
+    lib = env.team("p")
+    return _fails(lambda e: rec.record_value(lib, "p", "supply.min", "6 V", "rev A"), env)
+
+
+@case("VALUE_WHERE_TABLE")
+def _(env):
+    env.write("team/p.toml", PART.format(id="p").replace(
+        'supply = { min = "1.7 V", max = "5.5 V" }', 'supply = "3.3 V"'))
+    lib = load_library([env.tmp / "team"], env=False)
+    return _fails(lambda e: rec.record_value(lib, "p", "supply.min", "1.8 V", "rev A"), env)
+
+
+@case("VALUE_NEEDED")
+def _(env):
+    lib = env.team("p")
+    return _fails(lambda e: rec.record_value(lib, "p", "sda.c_in", "  ", "rev A"), env)
+
+
+@case("SOURCE_NEEDED")
+def _(env):
+    lib = env.team("p")
+    return _fails(lambda e: rec.record_value(lib, "p", "sda.c_in", "9 pF", " "), env)
+
+
+@case("EMPTY_TYPICAL")
+def _(env):
+    lib = env.team("p")
+    return _fails(lambda e: rec.record_value(lib, "p", "sda.c_in", "9 pF", "rev A", typ=" "), env)
+
+
+@case("FILE_NO_LONGER_HOLDS_PART")
+def _(env):
+    lib = env.team("p")
+    env.write("team/p.toml", PART.format(id="other"))
+    return _fails(lambda e: rec.record_value(lib, "p", "sda.c_in", "9 pF", "rev A"), env)
+
+
+@case("CANNOT_KEEP_LAYOUT")
+def _(env):
+    # The guard behind every edit: the text written must hold exactly the old data plus
+    # the new value.  An edit that does not land (simulated: the setter does nothing)
+    # is refused rather than written.
+    lib = env.team("p")
+    env.monkeypatch.setattr(rec, "_set_path", lambda doc, path, item: None)
+    return _fails(lambda e: rec.record_value(lib, "p", "sda.c_in", "9 pF", "rev A"), env)
+
+
+@case("NO_SUCH_PIN")
+def _(env):
+    lib = env.team("p")
+    return _fails(lambda e: rec.record_value(lib, "p", "cs.c_in", "9 pF", "rev A"), env)
+
+
+# ---------------------------------------------------------------- design
+@case("NOT_A_DESIGN")
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS, head=HEAD.replace("design/1", "design/7")), env)
+
+
+@case("DESIGN_LIBRARY_MISSING")
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS, head=HEAD.replace(
+        'title = "messages"\n', 'title = "messages"\nlibrary = ["no-such-folder"]\n')), env)
+
+
+@case("MICROSTRIP_NEEDS_HEIGHT")
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS, head=HEAD.replace('height = "0.18 mm"\n', "")), env)
+
+
+@case("STRIPLINE_NEEDS_SPACING")
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS, head=HEAD.replace('"microstrip"', '"stripline"')
+                                     .replace('height = "0.18 mm"\n', "")), env)
+
+
+def _device(part: str, extra: str = "") -> str:
+    return I2C_BUS.replace('{ ref = "U2", part = "eeprom-i2c" }',
+                           f'{{ ref = "U2", part = "{part}"{extra} }}')
+
+
+@case("ABSTRACT_ON_BOARD")
+def _(env):
+    return _fails(lambda e: e.design(_device("i2c-peripheral")), env)
+
+
+@case("CABLE_AS_DEVICE")
+def _(env):
+    return _fails(lambda e: e.design(_device("ribbon-cable")), env)
+
+
+def _trace(text: str) -> str:
+    return I2C_BUS.replace('trace = { length = "5 cm", geometry = "g" }', f"trace = {text}")
+
+
+@case("SECTIONS_OR_STRETCH")
+def _(env):
+    return _fails(lambda e: e.design(_trace(
+        '{ length = "5 cm", sections = [{ length = "1 cm", geometry = "g" }] }')), env)
+
+
+@case("TRACE_NEEDS_LENGTH")
+def _(env):
+    return _fails(lambda e: e.design(_trace('{ geometry = "g" }')), env)
+
+
+@case("NOT_A_CABLE")
+def _(env):
+    cables = 'cables = [{ part = "eeprom-i2c", length = "1 m" }]\n'
+    return _fails(lambda e: e.design(I2C_BUS + cables), env)
+
+
+@case("UNKNOWN_GEOMETRY")
+def _(env):
+    return _fails(lambda e: e.design(_trace('{ length = "5 cm", geometry = "outer" }')), env)
+
+
+@case("GEOMETRY_OR_PER_LENGTH")
+def _(env):
+    return _fails(lambda e: e.design(_trace(
+        '{ length = "5 cm", geometry = "g", capacitance = "0.8 pF/cm" }')), env)
+
+
+@case("TRACE_NEEDS_GEOMETRY")
+def _(env):
+    return _fails(lambda e: e.design(_trace('{ length = "5 cm" }')), env)
+
+
+@case("DUPLICATE_BUS_ID")
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS + I2C_BUS), env)
+
+
+@case("UNKNOWN_MODE")
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS + 'mode = "turbo"\n'), env)
+
+
+@case("BUS_HAS_NO_MODE", M.BUS_HAS_NO_MODE.format(protocol="spi"))
+def _(env):
+    return _fails(lambda e: e.design(SPI_BUS + 'mode = "fast"\n'), env)
+
+
+@case("CLOCK_NOT_POSITIVE")
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS + 'clock = "0 Hz"\n'), env)
+
+
+@case("NO_SUCH_REFERENCE")
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS, swaps={"U99": "eeprom-i2c"}), env)
+
+
+@case("OPEN_DRAIN_NO_LINES")
+def _(env):
+    lines = 'lines.sclk = { length = "3 cm", geometry = "g" }\n'
+    return _fails(lambda e: e.design(I2C_BUS + lines), env)
+
+
+SEGMENTED = """
+[[bus]]
+id = "b"
+protocol = "i2c"
+supply = "3.3 V"
+{bus_extra}
+[[bus.segment]]
+devices = [{{ ref = "U1", part = "mcu-3v3", role = "controller" }}{seg_extra}]
+trace = {{ length = "5 cm", geometry = "g" }}
+"""
+
+
+@case("DEVICES_IN_SEGMENTS")
+def _(env):
+    return _fails(lambda e: e.design(SEGMENTED.format(
+        bus_extra='devices = [{ ref = "U2", part = "eeprom-i2c" }]', seg_extra="")), env)
+
+
+@case("KEY_IN_SEGMENTS", M.KEY_IN_SEGMENTS.format(key="trace"))
+def _(env):
+    return _fails(lambda e: e.design(SEGMENTED.format(
+        bus_extra='trace = { length = "5 cm", geometry = "g" }', seg_extra="")), env)
+
+
+@case("BUS_NEEDS_PULLUP_SUPPLY")
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS.replace('supply = "3.3 V"\n', "")), env)
+
+
+@case("SUPPLY_NOT_POSITIVE")
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS.replace('"3.3 V"', '"0 V"')), env)
+
+
+@case("UNKNOWN_SERIES")
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS + 'pullup_series = "E7"\n'), env)
+
+
+@case("BUS_NEEDS_CONTROLLER")
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS.replace(', role = "controller"', "")), env)
+
+
+@case("BRIDGE_NEEDS_SIDE")
+def _(env):
+    return _fails(lambda e: e.design(_device("level-translator-mosfet")), env)
+
+
+@case("SIDE_ONLY_FOR_BRIDGE")
+def _(env):
+    return _fails(lambda e: e.design(_device("eeprom-i2c", ', side = "a"')), env)
+
+
+@case("PART_LACKS_PIN", M.PART_LACKS_PIN.format(function="i2c-sda"))
+def _(env):
+    return _fails(lambda e: e.design(_device("nor-flash-spi")), env)
+
+
+HALF_BRIDGE = """\
+format = "pinlib.part/1"
+id = "half-bridge"
+title = "A bridge whose side b has no clock pin"
+category = "buffer"
+supply = { min = "1.7 V", max = "5.5 V" }
+bridge = { kind = "buffer" }
+
+[sides.a.pins.sda]
+function = "i2c-sda"
+drive = "open-drain"
+
+[sides.a.pins.scl]
+function = "i2c-scl"
+drive = "open-drain"
+
+[sides.b.pins.sda]
+function = "i2c-sda"
+drive = "open-drain"
+"""
+
+
+@case("PART_LACKS_PIN_ON_SIDE", M.PART_LACKS_PIN_ON_SIDE.format(function="i2c-scl", side="b"))
+def _(env):
+    env.write("parts/half-bridge.toml", HALF_BRIDGE)
+    head = HEAD.replace('title = "messages"\n', 'title = "messages"\nlibrary = ["parts"]\n')
+    return _fails(lambda e: e.design(SEGMENTED.format(
+        bus_extra="", seg_extra=', { ref = "Q1", part = "half-bridge", side = "b" }'), head=head),
+        env)
+
+
+@case("BRIDGE_IN_TWO_SEGMENTS")
+def _(env):
+    return _fails(lambda e: e.design(SEGMENTED.format(
+        bus_extra="", seg_extra=', { ref = "Q1", part = "level-translator-mosfet", side = "a" }')),
+        env)
+
+
+@case("BUS_HAS_NO_SEGMENTS", M.BUS_HAS_NO_SEGMENTS.format(protocol="spi"))
+def _(env):
+    return _fails(lambda e: e.design(SPI_BUS + '\n[[bus.segment]]\nsupply = "3.3 V"\n'), env)
+
+
+@case("BUS_HAS_NO_KEY", M.BUS_HAS_NO_KEY.format(protocol="spi", key="pullup"))
+def _(env):
+    return _fails(lambda e: e.design(SPI_BUS + 'pullup = "2.2 kΩ"\n'), env)
+
+
+@case("BUS_NEEDS_SUPPLY")
+def _(env):
+    return _fails(lambda e: e.design(SPI_BUS.replace('supply = "3.3 V"\n', "")), env)
+
+
+@case("UNKNOWN_SPI_SIGNAL")
+def _(env):
+    lines = 'lines.miso = { length = "3 cm", geometry = "g" }\n'
+    return _fails(lambda e: e.design(SPI_BUS + lines), env)
+
+
+@case("SPI_NEEDS_CLOCK")
+def _(env):
+    return _fails(lambda e: e.design(SPI_BUS.replace('clock = "10 MHz"\n', "")), env)
+
+
+@case("SPI_NEEDS_SCLK")
+def _(env):
+    return _fails(lambda e: e.design(SPI_BUS.replace("lines.sclk", "lines.cs")), env)
+
+
+# ---------------------------------------------------------------- commands
+@case("NO_FOLDER_FOR_NEW_PART")
+def _(env):
+    return env.cli("parts", "new", "fresh", "--from", "eeprom-i2c")
+
+
+@case("PART_DOES_NOT_LOAD")
+def _(env):
+    env.write("other/base.toml", _pin_value('"1 F"').replace('id = "p"', 'id = "base"'))
+    env.write("team/child.toml", 'format = "pinlib.part/1"\nid = "child"\nextends = "base"\n')
+    code = main(["parts", "check", str(env.tmp / "team"), "--library", str(env.tmp / "other"),
+                 "--json"])
+    assert code == 1
+    problems = json.loads(env.capsys.readouterr().out)["problems"]
+    return next(p["message"] for p in problems if p["file"].endswith("child.toml"))
+
+
+@case("SUBSTITUTION_FORM")
+def _(env):
+    return env.cli("swap", str(env.write("design.toml", HEAD + I2C_BUS)), "U2")
+
+
+@case("SUBSTITUTED_TWICE")
+def _(env):
+    return env.cli("swap", str(env.write("design.toml", HEAD + I2C_BUS)), "U2=rtc-i2c",
+                   "U2=adc-i2c")
+
+
+@case("DESIGN_CHANGED_DURING_SWAP")
+def _(env):
+    import pinlib.check
+
+    path = env.write("design.toml", HEAD + I2C_BUS)
+    real = pinlib.check.check_design
+
+    def meddle(design):
+        path.write_text(HEAD + I2C_BUS + "\n# edited meanwhile\n", encoding="utf-8")
+        return real(design)
+
+    env.monkeypatch.setattr(pinlib.check, "check_design", meddle)
+    return env.cli("swap", str(path), "U2=rtc-i2c", "--write")
+
+
+@pytest.mark.parametrize(("name", "expected", "trigger"), CASES)
+def test_message(name, expected, trigger, tmp_path, monkeypatch, capsys):
+    text = getattr(M, name)
+    expected = text if expected is None else expected
+    got = trigger(Env(tmp_path, monkeypatch, capsys))
+    if isinstance(got, PinlibError):
+        assert got.problem == expected
+        assert expected in got.message
+    else:  # printed by the command line (or a problem in its JSON)
+        assert expected in got
+
+
+def test_every_message_has_its_case():
+    names = [p.values[0] for p in CASES]
+    assert len(names) == len(set(names)), "a message tested twice"
+    assert sorted(names) == sorted(M.all_messages())
+
+
+def test_converted_modules_write_no_message_of_their_own():
+    # A pinlib error raised in a converted module takes its text from pinlib.messages: no
+    # string literal as the first argument of an error (or the problem of _fail).
+    import importlib
+    import inspect
+    import re
+
+    own = re.compile(r"\b(InputError|UnitError|LibraryError|DesignError|WriteError|err)\(\s*f?[\"']"
+                     r"|_fail\(text, unit, field, f?[\"']")
+    for name in M.MODULES:
+        source = inspect.getsource(importlib.import_module(name))
+        hits = [line.strip() for line in source.splitlines() if own.search(line)]
+        assert not hits, (name, hits)
