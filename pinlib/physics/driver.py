@@ -21,7 +21,8 @@ from __future__ import annotations
 
 import math
 import warnings
-from dataclasses import dataclass, field
+from collections import OrderedDict
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -90,6 +91,12 @@ _MAX_ITER = 300
 _STEP_TOL = 1e-13
 _COST_RTOL = 1e-15
 _FD_STEP = 1e-7
+
+# Fits already made in this process, by their inputs.  The SPI engine fits the same
+# datasheet points once per routed line and edge; the fit is deterministic, so a repeat
+# returns the stored fit (and issues its warnings again).  Bounded, oldest dropped first.
+_FIT_CACHE: OrderedDict = OrderedDict()
+_FIT_CACHE_SIZE = 256
 
 
 # --------------------------------------------------------------------------- results
@@ -384,17 +391,21 @@ def _lm(fun, x0, lower, upper, free):
 
 def _jacobian(fun, x, lower, upper, free):
     """Central differences inside the box (one-sided at a bound)."""
-    cols = []
+    cols: list = [None] * x.size
     for i in range(x.size):
         if not free[i]:
-            cols.append(np.zeros_like(fun(x)))
             continue
         xp = x.copy()
         xm = x.copy()
         xp[i] = min(x[i] + _FD_STEP, upper[i])
         xm[i] = max(x[i] - _FD_STEP, lower[i])
-        cols.append((fun(xp) - fun(xm)) / (xp[i] - xm[i]))
-    return np.column_stack(cols)
+        cols[i] = (fun(xp) - fun(xm)) / (xp[i] - xm[i])
+    # A held parameter's column is zero; its length is that of the residual vector (found
+    # from a free column, or by one evaluation when nothing is free).
+    size = next((c.size for c in cols if c is not None), None)
+    if size is None:
+        size = np.asarray(fun(x)).size
+    return np.column_stack([np.zeros(size) if c is None else c for c in cols])
 
 
 class _Problem:
@@ -615,6 +626,15 @@ def fit_driver(loads, times, levels="10-90", *, r_out=None, r_out_dc=None):
     if r_out_dc is not None:
         r_dc = float(_positive(r_out_dc, "r_out_dc", "[Ω]"))
 
+    key = (loads_a.tobytes(), times_a.tobytes(), tuple(names),
+           None if r_out is None else r_fixed, None if r_out_dc is None else r_dc)
+    cached = _FIT_CACHE.get(key)
+    if cached is not None:
+        _FIT_CACHE.move_to_end(key)
+        for msg in cached.warnings:
+            warnings.warn(msg, FitWarning, stacklevel=2)
+        return replace(cached, residuals=cached.residuals.copy())
+
     notes: list[str] = []
     messages = _decreasing_points(loads_a, times_a, names)
     conditions = {(float(c), n) for c, n in zip(loads_a, names)}
@@ -695,7 +715,7 @@ def fit_driver(loads, times, levels="10-90", *, r_out=None, r_out_dc=None):
 
     for msg in messages:
         warnings.warn(msg, FitWarning, stacklevel=2)
-    return DriverFit(
+    fit = DriverFit(
         r_out=r_fit,
         t_ramp=t_fit,
         residuals=residuals,
@@ -704,6 +724,10 @@ def fit_driver(loads, times, levels="10-90", *, r_out=None, r_out_dc=None):
         warnings=tuple(messages),
         notes=tuple(notes),
     )
+    _FIT_CACHE[key] = replace(fit, residuals=residuals.copy())
+    while len(_FIT_CACHE) > _FIT_CACHE_SIZE:
+        _FIT_CACHE.popitem(last=False)
+    return fit
 
 
 def _r_out_spread(problem, x, lower, upper, free) -> float:
