@@ -30,14 +30,13 @@ import html
 import math
 import re
 import shutil
-import struct
 import subprocess
-import zlib
 from html.parser import HTMLParser
 from pathlib import Path
 
 import numpy as np
 import pytest
+from pngcheck import png_pixels
 
 from pinlib import plotdata, review
 from pinlib.check import check_design
@@ -608,60 +607,6 @@ def test_command_without_a_monte_carlo_engine(tmp_path, capsys, monkeypatch):
 # =========================================================================== browser
 
 
-def _png_pixels(data: bytes) -> np.ndarray:
-    """Decode an 8-bit, non-interlaced RGB or RGBA PNG (what Chromium writes) to an
-    array of shape (height, width, channels).  PNG specification (W3C, 2003), §9:
-    filter types 0-4 per scanline."""
-    assert data[:8] == b"\x89PNG\r\n\x1a\n", "not a PNG"
-    pos, chunks, header = 8, [], None
-    while pos < len(data):
-        (n,) = struct.unpack(">I", data[pos:pos + 4])
-        kind, body = data[pos + 4:pos + 8], data[pos + 8:pos + 8 + n]
-        pos += 12 + n
-        if kind == b"IHDR":
-            header = struct.unpack(">IIBBBBB", body)
-        elif kind == b"IDAT":
-            chunks.append(body)
-        elif kind == b"IEND":
-            break
-    width, height, depth, colour, _, _, interlace = header
-    assert depth == 8 and interlace == 0 and colour in (2, 6)
-    bpp = 3 if colour == 2 else 4
-    raw = zlib.decompress(b"".join(chunks))
-    stride = width * bpp
-    out = np.empty((height, stride), dtype=np.uint8)
-    prev = np.zeros(stride, dtype=np.uint8)
-    for y in range(height):
-        start = y * (stride + 1)
-        kind = raw[start]
-        line = np.frombuffer(raw, dtype=np.uint8, count=stride, offset=start + 1)
-        if kind == 0:
-            cur = line.copy()
-        elif kind == 2:  # Up
-            cur = line + prev
-        elif kind == 1:  # Sub: a running sum per channel, modulo 256
-            cur = np.cumsum(line.reshape(-1, bpp).astype(np.int64), axis=0)
-            cur = (cur % 256).astype(np.uint8).ravel()
-        else:  # Average (3) and Paeth (4) depend on the pixel just decoded
-            cur_b = bytearray(line.tobytes())
-            up = prev.tobytes()
-            for i in range(stride):
-                a = cur_b[i - bpp] if i >= bpp else 0
-                b = up[i]
-                if kind == 3:
-                    cur_b[i] = (cur_b[i] + ((a + b) >> 1)) & 255
-                else:
-                    c = up[i - bpp] if i >= bpp else 0
-                    p = a + b - c
-                    pa, pb, pc = abs(p - a), abs(p - b), abs(p - c)
-                    pred = a if pa <= pb and pa <= pc else (b if pb <= pc else c)
-                    cur_b[i] = (cur_b[i] + pred) & 255
-            cur = np.frombuffer(bytes(cur_b), dtype=np.uint8)
-        out[y] = cur
-        prev = out[y]
-    return out.reshape(height, width, bpp)[..., :3]
-
-
 def _chromium(url: str, tmp: Path, *extra: str) -> subprocess.CompletedProcess:
     profile = tmp / "profile"
     profile.mkdir(exist_ok=True)
@@ -680,7 +625,7 @@ def _screenshot(path: Path, tmp: Path) -> tuple[np.ndarray, subprocess.Completed
     shot = tmp / f"{path.stem}.png"
     run = _chromium(path.as_uri(), tmp, f"--screenshot={shot}", "--window-size=1280,2000")
     assert shot.exists(), run.stderr[-2000:]
-    return _png_pixels(shot.read_bytes()), run
+    return png_pixels(shot.read_bytes()), run
 
 
 def _colour_count(img: np.ndarray, rgb, tol: int = 6) -> int:

@@ -1,0 +1,64 @@
+"""``pinlib check`` of the demo design as a fresh process, against ``python -c pass``.
+
+This is what a user waits for at the prompt: interpreter start, imports (pandas,
+altair and the widgets must stay out of this path), library load, every engine and the
+text report.  The baseline is the bare interpreter start in the same run.
+"""
+
+from __future__ import annotations
+
+import os
+import subprocess
+import sys
+from pathlib import Path
+
+from tests.bench.common import Result, median_time
+
+__all__ = ["run", "DEMO"]
+
+ROOT = Path(__file__).resolve().parents[2]
+DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"
+TARGET = 0.5  # s
+
+
+def _command() -> list[str]:
+    script = Path(sys.executable).with_name("pinlib")
+    if script.exists():
+        return [str(script)]
+    return [sys.executable, "-m", "pinlib"]
+
+
+def _run(args: list[str]) -> None:
+    env = dict(os.environ)
+    env.pop("PINLIB_LIBRARY", None)
+    proc = subprocess.run(args, cwd=ROOT, capture_output=True, text=True, env=env, check=False)
+    if proc.returncode not in (0, 1):
+        raise RuntimeError(f"{' '.join(args)} exited {proc.returncode}: {proc.stderr[-500:]}")
+
+
+def heavy_imports() -> list[str]:
+    """Modules that must not be imported by ``pinlib check`` (found by running it)."""
+    code = "\n".join([
+        "import sys, runpy",
+        f"sys.argv = ['pinlib', 'check', {str(DEMO)!r}]",
+        "try:",
+        "    runpy.run_module('pinlib', run_name='__main__')",
+        "except SystemExit:",
+        "    pass",
+        "heavy = ('pandas', 'altair', 'ipywidgets', 'scipy', 'skrf')",
+        "print(' '.join(m for m in heavy if m in sys.modules), file=sys.stderr)",
+    ])
+    proc = subprocess.run([sys.executable, "-c", code], cwd=ROOT, capture_output=True,
+                          text=True, check=False)
+    return proc.stderr.strip().splitlines()[-1].split() if proc.stderr.strip() else []
+
+
+def run(repeats: int = 7, quick: bool = False) -> list[Result]:
+    cmd = _command() + ["check", str(DEMO)]
+    t_check = median_time(lambda: _run(cmd), repeats)
+    t_bare = median_time(lambda: _run([sys.executable, "-c", "pass"]), repeats)
+    heavy = heavy_imports()
+    return [Result("pinlib check demo (fresh process)", t_check, "python -c pass", t_bare,
+                   t_check / t_bare, "of a bare interpreter start", target=f"< {TARGET:g} s",
+                   passed=t_check < TARGET,
+                   extra=["heavy imports: " + (", ".join(heavy) if heavy else "none")])]

@@ -1,0 +1,41 @@
+"""A large generated design checked: 100 buses of 20 devices each.
+
+:func:`pinlib.design.load_design` (with the library load) and
+:func:`pinlib.check.check_design` in this process.  The baseline is one bus of the
+same kind with 10 buses, loaded and checked the same way: the ratio shows whether the
+cost grows linearly with the buses (10 for ten times the buses; less when the fixed
+part, the library load, still counts).
+"""
+
+from __future__ import annotations
+
+import tempfile
+from pathlib import Path
+
+from pinlib.check import check_design
+from pinlib.design import load_design
+from tests.bench.common import Result, median_time
+from tests.bench.generate import large_design
+
+__all__ = ["run"]
+
+BUSES, DEVICES = 100, 20
+TARGET = 2.0  # s
+
+
+def run(repeats: int = 5, quick: bool = False) -> list[Result]:
+    with tempfile.TemporaryDirectory(prefix="pinlib-bench-") as tmp:
+        big, small = Path(tmp) / "large.toml", Path(tmp) / "small.toml"
+        big.write_text(large_design(BUSES, DEVICES), encoding="utf-8")
+        small.write_text(large_design(BUSES // 10, DEVICES), encoding="utf-8")
+        result = check_design(load_design(big))
+        if len(result.buses) != BUSES or any(not b.checks for b in result.buses):
+            raise RuntimeError("the large design was not checked bus by bus")
+        t_big = median_time(lambda: check_design(load_design(big)), repeats)
+        t_small = median_time(lambda: check_design(load_design(small)), repeats)
+    statuses = sorted({b.status for b in result.buses})
+    return [Result(f"large design: {BUSES} buses x {DEVICES} devices", t_big,
+                   f"{BUSES // 10} buses", t_small, t_big / t_small,
+                   "for 10x the buses (10 = linear)",
+                   target=f"< {TARGET:g} s", passed=t_big < TARGET,
+                   extra=["bus status " + "/".join(statuses)])]

@@ -1,0 +1,49 @@
+"""Library load: 1,000 generated team part files merged with the built-in library.
+
+:func:`pinlib.library.loader.load_library` reads, merges (``extends`` chains up to
+three files deep) and validates every part.  Baselines in the same run: a plain
+``tomllib`` parse of the same 1,000 files (the ratio is the cost of merging and
+validating against parsing alone), and a load of the first 100 files (the ratio per
+file shows whether the cost grows linearly).
+"""
+
+from __future__ import annotations
+
+import tempfile
+from pathlib import Path
+
+from pinlib.library.loader import load_library
+from pinlib.tomlfile import tomllib
+from tests.bench.common import Result, median_time
+from tests.bench.generate import write_parts
+
+__all__ = ["run"]
+
+N = 1000
+TARGET = 1.0  # s
+
+
+def run(repeats: int = 5, quick: bool = False) -> list[Result]:
+    with tempfile.TemporaryDirectory(prefix="pinlib-bench-") as tmp:
+        big, small = Path(tmp) / "team-1000", Path(tmp) / "team-100"
+        paths = write_parts(big, N)
+        write_parts(small, N // 10)
+        lib = load_library([big], env=False)
+        if lib.problems or sum(p.startswith("gen-") for p in lib.parts) != N:
+            raise RuntimeError(f"generated library did not load: {lib.problems[:3]}")
+
+        def parse_only():
+            for p in paths:
+                tomllib.loads(p.read_text(encoding="utf-8"))
+
+        t_load = median_time(lambda: load_library([big], env=False), repeats)
+        t_parse = median_time(parse_only, repeats)
+        t_small = median_time(lambda: load_library([small], env=False), repeats)
+    n_all = len(lib.parts)
+    return [
+        Result(f"library load: {N} part files", t_load, "tomllib parse only", t_parse,
+               t_load / t_parse, "of a plain parse", target=f"< {TARGET:g} s",
+               passed=t_load < TARGET, extra=[f"{n_all} parts with the built-in ones"]),
+        Result(f"library load: {N} vs {N // 10} files", t_load, f"{N // 10} files", t_small,
+               t_load / t_small, f"for {N // (N // 10)}x the files (10 = linear)"),
+    ]

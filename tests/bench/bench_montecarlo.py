@@ -1,0 +1,92 @@
+"""Monte Carlo: boards per second drawn and checked by :func:`pinlib.whatif.monte_carlo`.
+
+An I2C bus (a small design with every tolerance set) and the demo design's open-drain
+buses (a bridged I2C bus of two segments and an SMBus link).  The baseline is one
+board checked by the engine (:func:`pinlib.check.evaluate_bus` on each sampled bus):
+the ratio says how many boards the vectorized draw checks in the time the engine
+checks one.  SPI buses are not sampled: ``pinlib.whatif`` has no vectorized push-pull model
+(it says so in its notes), so there is no SPI rate to report yet.
+"""
+
+from __future__ import annotations
+
+import tempfile
+from pathlib import Path
+
+from pinlib.check import evaluate_bus
+from pinlib.design import load_design
+from pinlib.whatif import monte_carlo
+from tests.bench.common import Result, median_time
+
+__all__ = ["run"]
+
+N = 200_000
+TARGET = 100_000  # boards per second
+
+I2C = """\
+format = "pinlib.design/1"
+title = "Monte Carlo benchmark, one I2C bus (generated)"
+
+[board.geometry.g]
+kind = "microstrip"
+width = "0.2 mm"
+height = "0.18 mm"
+er = 4.2
+
+[[bus]]
+id = "sensors"
+protocol = "i2c"
+mode = "fast"
+supply = "3.3 V"
+supply_tolerance = "5 %"
+pullup = "2.2 kΩ"
+pullup_tolerance = "5 %"
+capacitance_tolerance = "10 %"
+length_tolerance = "10 %"
+trace = { length = "12 cm", geometry = "g" }
+extra_capacitance = "10 pF"
+cables = [{ part = "ribbon-cable", length = "0.3 m" }]
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "eeprom-i2c", capacitance_tolerance = "10 %" },
+  { ref = "U3", part = "rtc-i2c", capacitance_tolerance = "10 %" },
+  { ref = "U4", part = "adc-i2c" },
+]
+"""
+
+DEMO = Path(__file__).resolve().parents[2] / "workbooks" / "designs" / "demo-board.toml"
+
+
+def _rate(design, n: int, repeats: int):
+    result = monte_carlo(design, 1000, seed=1)
+    sampled = {c.bus for c in result.checks}
+    buses = [b for b in design.buses if b.id in sampled]
+
+    def one_board():  # the engine on every sampled bus, once
+        for bus in buses:
+            evaluate_bus(bus, design)
+
+    t_mc = median_time(lambda: monte_carlo(design, n, seed=1), repeats, warmup=0)
+    t_one = median_time(one_board, max(repeats, 3))
+    return n / t_mc, 1.0 / t_one, result
+
+
+def run(repeats: int = 3, quick: bool = False) -> list[Result]:
+    n = N // 10 if quick else N
+    out = []
+    with tempfile.TemporaryDirectory(prefix="pinlib-bench-") as tmp:
+        path = Path(tmp) / "i2c.toml"
+        path.write_text(I2C, encoding="utf-8")
+        cases = [("I2C bus", load_design(path)), ("demo open-drain buses", load_design(DEMO))]
+        for label, design in cases:
+            rate, one, result = _rate(design, n, repeats)
+            sampled = sorted({c.bus for c in result.checks})
+            out.append(Result(f"Monte Carlo: {label}", rate, "engine, one board", one,
+                              rate / one, "boards per engine check", unit="boards/s",
+                              target=f"> {TARGET:,}/s", passed=rate > TARGET,
+                              extra=[f"{n:,} boards, {len(result.parameters)} parameters, buses "
+                                     + ", ".join(sampled)]))
+    out.append(Result("Monte Carlo: SPI bus", 0, "", 0, 0, "",
+                      todo="pinlib.whatif samples open-drain buses only (no vectorized "
+                           "push-pull model yet)"))
+    return out

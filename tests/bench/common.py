@@ -1,0 +1,97 @@
+"""Timing helpers and the one-line result format shared by the benchmarks."""
+
+from __future__ import annotations
+
+import gc
+import os
+import platform
+import statistics
+import sys
+import time
+from dataclasses import dataclass, field
+
+__all__ = ["Result", "median_time", "machine", "format_seconds", "format_ratio"]
+
+
+def median_time(func, repeats: int, *, warmup: int = 1) -> float:
+    """Median wall time of ``func()`` over ``repeats`` runs after ``warmup`` runs. [s]"""
+    for _ in range(warmup):
+        func()
+    times = []
+    for _ in range(repeats):
+        gc.collect()
+        start = time.perf_counter()
+        func()
+        times.append(time.perf_counter() - start)
+    return statistics.median(times)
+
+
+def format_seconds(seconds: float) -> str:
+    for scale, unit in ((1e-6, "µs"), (1e-3, "ms")):
+        if seconds < 1000 * scale:
+            return f"{seconds / scale:.3g} {unit}"
+    return f"{seconds:.3g} s"
+
+
+def format_ratio(x: float) -> str:
+    return f"{x:,.0f}" if x >= 100 else f"{x:.3g}"
+
+
+@dataclass
+class Result:
+    """One benchmark line.
+
+    ``value`` and ``baseline`` are what was measured (seconds, unless ``unit`` says
+    otherwise); ``ratio`` is how they compare, described by ``ratio_text``;
+    ``passed`` is None when the benchmark has no target.
+    """
+
+    name: str
+    value: float
+    baseline_name: str
+    baseline: float
+    ratio: float
+    ratio_text: str
+    target: str = ""
+    passed: bool | None = None
+    unit: str = "s"
+    extra: list[str] = field(default_factory=list)
+    todo: str | None = None
+
+    def shown(self, x: float) -> str:
+        if self.unit == "s":
+            return format_seconds(x)
+        return f"{x:,.0f} {self.unit}"
+
+    def line(self) -> str:
+        if self.todo:
+            return f"{self.name:<34} TODO: {self.todo}"
+        verdict = "" if self.passed is None else ("pass" if self.passed else "MISS")
+        bits = [f"{self.name:<34}", f"{self.shown(self.value):>11}",
+                f"| {self.baseline_name} {self.shown(self.baseline)}",
+                f"| {format_ratio(self.ratio)}x {self.ratio_text}"]
+        bits += [f"| {e}" for e in self.extra]
+        if self.target:
+            bits.append(f"| target {self.target}: {verdict}")
+        return " ".join(bits)
+
+
+def machine() -> dict[str, str]:
+    import numpy
+
+    cpu = platform.processor() or platform.machine()
+    try:
+        with open("/proc/cpuinfo", encoding="utf-8") as fh:
+            for line in fh:
+                if line.startswith("model name"):
+                    cpu = line.split(":", 1)[1].strip()
+                    break
+    except OSError:
+        pass
+    return {
+        "platform": platform.platform(),
+        "cpu": cpu,
+        "cpus": str(os.cpu_count()),
+        "python": sys.version.split()[0],
+        "numpy": numpy.__version__,
+    }
