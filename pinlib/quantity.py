@@ -68,7 +68,8 @@ _PREFIX = {
 
 # Spellings of each base unit.  Keys are matched exactly (case matters: mHz is not MHz).
 _UNIT_ALIAS = {
-    "Ω": "Ω", "Ω": "Ω", "ohm": "Ω", "ohms": "Ω", "Ohm": "Ω", "Ohms": "Ω", "OHM": "Ω", "R": "Ω",
+    "\u03a9": "Ω", "\u2126": "Ω",  # Greek capital omega and the ohm sign
+    "ohm": "Ω", "ohms": "Ω", "Ohm": "Ω", "Ohms": "Ω", "OHM": "Ω", "R": "Ω",
     "F": "F", "H": "H",
     "s": "s", "sec": "s",
     "V": "V", "v": "V",

@@ -237,3 +237,8 @@ def test_fuzz_parse_threshold(text):
         return
     assert math.isfinite(th.scale) and math.isfinite(th.offset)
     assert math.isfinite(float(th.resolve(3.3)))
+
+
+def test_both_ohm_characters_are_accepted():
+    # published: Unicode 15, U+2126 OHM SIGN is canonically equivalent to U+03A9 (Omega)
+    assert parse("4.7 k\u2126", "Ω") == parse("4.7 k\u03a9", "Ω") == 4700.0

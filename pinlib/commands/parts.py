@@ -347,6 +347,15 @@ def _show_data(lib, pid) -> dict:
         else:
             entry["value"] = item.value
         values.append(entry)
+    from pinlib.library.derive import derived_values
+
+    for field, item in derived_values(part).items():
+        values.append({
+            "field": field, "text": item.text, "unit": item.unit, "value": item.value,
+            "basis": "derived", "basis_from_part": False, "source": item.source,
+            "typ": None, "derived": True, "origin": pid,
+            "origin_file": str(lib.files[pid].path), "inherited": False,
+        })
     prov = part.provenance
     return {
         "id": part.id, "title": part.title, "category": part.category,

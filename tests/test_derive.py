@@ -1,0 +1,67 @@
+"""Derived values listed by the library: output resistance bounds from stated levels."""
+
+from __future__ import annotations
+
+import pytest
+
+from pinlib.cli import main
+from pinlib.library.derive import derived_values
+from pinlib.library.loader import load_library
+
+PART = """\
+format = "pinlib.part/1"
+id = "t-lvttl-out"
+title = "test part with LVTTL-style output levels"
+category = "logic"
+supply = { min = "3.0 V", max = "3.6 V" }
+
+[pins.out]
+function = "gpio"
+drive = "push-pull"
+c_in = "5 pF"
+v_oh = "2.4 V"
+i_oh = "2 mA"
+v_ol = "0.4 V"
+i_ol = "2 mA"
+
+[pins.odr]
+function = "gpio"
+drive = "open-drain"
+v_ol = "0.4 V"
+i_ol = "3 mA"
+
+[pins.fixed]
+function = "gpio"
+drive = "push-pull"
+r_out = "25 Ω"
+v_ol = "0.4 V"
+i_ol = "2 mA"
+"""
+
+
+@pytest.fixture()
+def part(tmp_path):
+    (tmp_path / "t.toml").write_text(PART, encoding="utf-8")
+    return load_library([tmp_path], builtin=False, env=False, strict=True).get("t-lvttl-out"), tmp_path
+
+
+def test_output_resistance_from_levels(part):
+    p, _ = part
+    d = derived_values(p)
+    # from memory: JESD8C.01 LVTTL, VOH 2.4 V at -2 mA, VOL 0.4 V at 2 mA (REFERENCES.md [M]);
+    # derived from Ohm's law at VDD min 3.0 V: (3.0 - 2.4) / 2 mA and 0.4 / 2 mA
+    assert d["pins.out.r_out_rise"].value == pytest.approx(300.0, rel=1e-12)
+    assert d["pins.out.r_out_fall"].value == pytest.approx(200.0, rel=1e-12)
+    # published: UM10204 rev. 6 table 9, VOL 0.4 V at IOL 3 mA -> 133.3 ohm sink (derived)
+    assert d["pins.odr.r_sink"].value == pytest.approx(133.33, abs=0.01)
+    assert all(v.basis == "derived" and v.derived for v in d.values())
+    # a stated r_out is never overridden by a derived one
+    assert not any(k.startswith("pins.fixed.") for k in d)
+
+
+def test_parts_show_lists_derived_values(part, capsys):
+    _, folder = part
+    assert main(["parts", "show", "t-lvttl-out", "--library", str(folder)]) == 0
+    out = capsys.readouterr().out
+    assert "pins.out.r_out_rise" in out and "[derived]" in out
+    assert "(VDD - v_oh) / i_oh" in out
