@@ -23,6 +23,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from pinlib import messages as M
 from pinlib.errors import InputError
 
 __all__ = [
@@ -85,7 +86,7 @@ def _series_key(name) -> str:
     key = name.strip().upper() if isinstance(name, str) else None
     if key not in _MANTISSAS:
         raise InputError(
-            "unknown preferred-number series",
+            M.UNKNOWN_NUMBER_SERIES,
             field="name",
             value=name,
             expected="one of " + ", ".join(SERIES_NAMES),
@@ -99,13 +100,13 @@ def _check_positive(x, field: str) -> np.ndarray:
         arr = np.asarray(x, dtype=float)
     except (TypeError, ValueError):
         raise InputError(
-            "not a number", field=field, value=x, expected="a positive finite value"
+            M.NOT_A_NUMBER, field=field, value=x, expected="a positive finite value"
         ) from None
     bad = ~(np.isfinite(arr) & (arr >= _X_MIN) & (arr <= _X_MAX))
     if np.any(bad):
         first = arr[bad].flat[0] if arr.ndim else float(arr)
         raise InputError(
-            "value out of range",
+            M.VALUE_OUT_OF_RANGE,
             field=field,
             value=float(first),
             expected=f"a positive finite value between {_X_MIN:g} and {_X_MAX:g}",
@@ -207,11 +208,11 @@ def values_in_range(name: str, lo: float, hi: float) -> np.ndarray:
     lo_a = _check_positive(lo, "lo")
     hi_a = _check_positive(hi, "hi")
     if lo_a.ndim or hi_a.ndim:
-        raise InputError("bound must be a single number", field="lo/hi", value=(lo, hi))
+        raise InputError(M.BOUND_NOT_SINGLE, field="lo/hi", value=(lo, hi))
     lo_f, hi_f = float(lo_a), float(hi_a)
     if lo_f > hi_f:
         raise InputError(
-            "lower bound above upper bound", field="lo", value=lo_f, expected=f"<= hi ({hi_f:g})"
+            M.LOWER_ABOVE_UPPER, field="lo", value=lo_f, expected=f"<= hi ({hi_f:g})"
         )
     n = _MANTISSAS[key][0].size
     # One decade of margin either side covers any rounding in floor(log10()).
@@ -357,7 +358,7 @@ def nearest(name: str, x, *, how: str = "log"):
     key = _series_key(name)
     if how not in _HOW:
         raise InputError(
-            "unknown rounding rule", field="how", value=how, expected='"log" or "linear"'
+            M.UNKNOWN_ROUNDING, field="how", value=how, expected='"log" or "linear"'
         )
     xa = _check_positive(x, "x")
     lower, upper = _bracket(key, xa)

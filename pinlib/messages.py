@@ -9,8 +9,8 @@ A constant with ``{placeholders}`` is a template, filled with ``str.format``::
 
 ``tests/test_messages.py`` triggers each of them once and checks the text.
 
-Not converted yet (they still write their texts where they raise): the engines
-(``pinlib/buses/*``, ``pinlib/physics/*``), ``pinlib/standards/*``, ``pinlib/eseries.py``,
+Not converted yet (they still write their texts where they raise): the bus engines
+(``pinlib/buses/*``), ``pinlib/physics/driver.py``,
 ``pinlib/compare.py``, ``pinlib/candidates.py``, ``pinlib/whatif.py``,
 ``pinlib/review.py``, ``pinlib/plotdata.py``, ``pinlib/charts.py``, ``pinlib/widgets.py``
 and the commands ``check``, ``report`` and ``candidates``.  Texts that pydantic writes
@@ -145,6 +145,60 @@ SUBSTITUTED_TWICE = "one reference substituted twice"
 DESIGN_CHANGED_DURING_SWAP = ("the design file changed while it was being evaluated; "
                               "nothing written")
 
+# ---------------------------------------------------------------- engines: plain numbers
+# shared by pinlib/standards/*, pinlib/eseries.py and pinlib/physics/*
+NOT_A_NUMBER = "not a number"
+MUST_BE_FINITE_NON_NEGATIVE = "value must be finite and not negative"
+UPPER_NOT_ABOVE_LOWER = "upper level must be above the lower level"
+# pinlib/standards/
+SUPPLY_NOT_POSITIVE_FINITE = "supply voltage must be positive and finite"
+UNKNOWN_I2C_MODE = "unknown I2C mode"
+NOT_AN_I2C_LIMIT = "not an I2C mode limit"
+UNKNOWN_LOGIC_LEVELS = "unknown logic-level set"
+UNKNOWN_SMBUS_CLASS = "unknown SMBus class"
+NOT_AN_SMBUS_LIMIT = "not an SMBus class limit"
+SUPPLY_BELOW_SMBUS_POINTS = "supply too low for the SMBus rise-time points"
+# pinlib/eseries.py
+UNKNOWN_NUMBER_SERIES = "unknown preferred-number series"
+VALUE_OUT_OF_RANGE = "value out of range"
+BOUND_NOT_SINGLE = "bound must be a single number"
+LOWER_ABOVE_UPPER = "lower bound above upper bound"
+UNKNOWN_ROUNDING = "unknown rounding rule"
+# pinlib/physics/rc.py
+FRACTION_OUT_OF_RANGE = "fraction of the final value out of range"
+MUST_BE_FINITE_POSITIVE = "value must be finite and positive"
+SUPPLY_BELOW_UPPER_LEVEL = "supply does not reach the upper measuring level"
+LOW_LEVEL_NOT_BELOW_SUPPLY = "low level is not below the supply"
+# pinlib/physics/pullup.py
+MUST_BE_POSITIVE = "value must be positive"
+NO_RESISTANCES = "no resistances given"
+MUST_NOT_BE_NEGATIVE = "value must not be negative"
+CLOCK_PERIOD_ZERO = "the clock period is zero"
+LEVELS_OUT_OF_RANGE = "measuring levels out of range"
+RISE_FASTER_THAN_PROBE = "the measured rise is faster than the probe alone allows"
+
+# pinlib/physics/waveform.py
+UNKNOWN_EDGE = "unknown edge"
+TIME_NOT_1D = "time must be a 1-D array of at least two samples"
+SAMPLES_NOT_ON_TIME_AXIS = "waveform samples do not match the time axis"
+EDGE_NO_SWING = "edge has no swing"
+EDGE_LEVELS_OUT_OF_ORDER = "edge levels out of order"
+VIH_NOT_ABOVE_VIL = "VIH must be above VIL"
+NEGATIVE_SOURCE_OR_LOAD = "source resistance and load capacitance must not be negative"
+TIME_GRID_FORM = "time grid must be 1-D, start at 0 and hold at least two samples"
+TIME_GRID_NOT_UNIFORM = "time grid must be uniform and increasing"
+SECTION_NOT_A_PAIR = "a line section must be a pair (z0, td)"
+Z0_NOT_POSITIVE = "characteristic impedance must be positive"
+SECTION_DELAY_FORM = "section delay must be one number >= 0"
+TIME_STEP_TOO_COARSE = "time step too coarse for a line section"
+MID_JUNCTION_OUT_OF_RANGE = "junction for c_mid out of range"
+# pinlib/physics/lines.py
+PARAMETER_NOT_A_NUMBER = "parameter '{name}' is not a number"
+PARAMETER_OUT_OF_RANGE = "parameter '{name}' is out of range"
+UNKNOWN_LINE_METHOD = "unknown {kind} method"
+SHAPES_DO_NOT_BROADCAST = "parameters w, h/b, er, t have shapes that do not broadcast"
+UNKNOWN_LINE_KIND = "unknown line kind"
+
 #: The modules whose raise sites take their texts from here.
 MODULES = (
     "pinlib.tomlfile",
@@ -157,6 +211,14 @@ MODULES = (
     "pinlib.design",
     "pinlib.commands.parts",
     "pinlib.commands.swap",
+    "pinlib.standards.i2c",
+    "pinlib.standards.jedec",
+    "pinlib.standards.smbus",
+    "pinlib.eseries",
+    "pinlib.physics.rc",
+    "pinlib.physics.pullup",
+    "pinlib.physics.waveform",
+    "pinlib.physics.lines",
 )
 
 

@@ -796,6 +796,280 @@ def _(env):
     return env.cli("swap", str(path), "U2=rtc-i2c", "--write")
 
 
+# ---------------------------------------------------------------- engines: standards
+@case("SUPPLY_NOT_POSITIVE_FINITE")
+def _(env):
+    from pinlib.standards.i2c import i2c_mode
+    return _fails(lambda e: i2c_mode("fast").v_il_at(0.0), env)
+
+
+@case("UNKNOWN_I2C_MODE")
+def _(env):
+    from pinlib.standards.i2c import i2c_mode
+    return _fails(lambda e: i2c_mode("warp"), env)
+
+
+@case("NOT_AN_I2C_LIMIT")
+def _(env):
+    from pinlib.standards.i2c import i2c_mode
+    return _fails(lambda e: i2c_mode("fast").source_of("colour"), env)
+
+
+@case("UNKNOWN_LOGIC_LEVELS")
+def _(env):
+    from pinlib.standards.jedec import logic_levels
+    return _fails(lambda e: logic_levels("LVCMOS99"), env)
+
+
+@case("UNKNOWN_SMBUS_CLASS")
+def _(env):
+    from pinlib.standards.smbus import smbus_class
+    return _fails(lambda e: smbus_class("9M"), env)
+
+
+@case("NOT_AN_SMBUS_LIMIT")
+def _(env):
+    from pinlib.standards.smbus import smbus_class
+    return _fails(lambda e: smbus_class("100k").source_of("colour"), env)
+
+
+@case("SUPPLY_BELOW_SMBUS_POINTS")
+def _(env):
+    from pinlib.standards.smbus import rise_rc_factor
+    return _fails(lambda e: rise_rc_factor("100k", 1.0), env)
+
+
+# ---------------------------------------------------------------- engines: eseries
+@case("NOT_A_NUMBER")
+def _(env):
+    from pinlib.eseries import nearest
+    return _fails(lambda e: nearest("E24", "many"), env)
+
+
+@case("UNKNOWN_NUMBER_SERIES")
+def _(env):
+    from pinlib.eseries import nearest
+    return _fails(lambda e: nearest("E7", 1000.0), env)
+
+
+@case("VALUE_OUT_OF_RANGE")
+def _(env):
+    from pinlib.eseries import nearest
+    return _fails(lambda e: nearest("E24", -1.0), env)
+
+
+@case("BOUND_NOT_SINGLE")
+def _(env):
+    from pinlib.eseries import values_in_range
+    return _fails(lambda e: values_in_range("E24", [1.0, 2.0], 10.0), env)
+
+
+@case("LOWER_ABOVE_UPPER")
+def _(env):
+    from pinlib.eseries import values_in_range
+    return _fails(lambda e: values_in_range("E24", 100.0, 10.0), env)
+
+
+@case("UNKNOWN_ROUNDING")
+def _(env):
+    from pinlib.eseries import nearest
+    return _fails(lambda e: nearest("E24", 1000.0, how="cubic"), env)
+
+
+# ---------------------------------------------------------------- engines: physics.rc
+@case("FRACTION_OUT_OF_RANGE")
+def _(env):
+    from pinlib.physics.rc import rc_rise_time
+    return _fails(lambda e: rc_rise_time(1e3, 1e-12, lo=1.5), env)
+
+
+@case("MUST_BE_FINITE_NON_NEGATIVE")
+def _(env):
+    from pinlib.physics.rc import rc_rise_time
+    return _fails(lambda e: rc_rise_time(-1.0, 1e-12), env)
+
+
+@case("UPPER_NOT_ABOVE_LOWER")
+def _(env):
+    from pinlib.physics.rc import rc_rise_time
+    return _fails(lambda e: rc_rise_time(1e3, 1e-12, lo=0.7, hi=0.3), env)
+
+
+@case("MUST_BE_FINITE_POSITIVE")
+def _(env):
+    from pinlib.physics.rc import smbus_rise_factor
+    return _fails(lambda e: smbus_rise_factor(0.0), env)
+
+
+@case("SUPPLY_BELOW_UPPER_LEVEL")
+def _(env):
+    from pinlib.physics.rc import smbus_rise_factor
+    return _fails(lambda e: smbus_rise_factor(1.0), env)
+
+
+@case("LOW_LEVEL_NOT_BELOW_SUPPLY")
+def _(env):
+    from pinlib.physics.rc import rp_min
+    return _fails(lambda e: rp_min(3.3, 4.0, 3e-3), env)
+
+
+# ---------------------------------------------------------------- engines: physics.pullup
+@case("MUST_BE_POSITIVE")
+def _(env):
+    from pinlib.physics.pullup import sink_resistance
+    return _fails(lambda e: sink_resistance(0.4, 0.0), env)
+
+
+@case("NO_RESISTANCES")
+def _(env):
+    from pinlib.physics.pullup import parallel
+    return _fails(lambda e: parallel(), env)
+
+
+@case("MUST_NOT_BE_NEGATIVE")
+def _(env):
+    from pinlib.physics.pullup import scl_frequency
+    return _fails(lambda e: scl_frequency(-1e-6, 0.6e-6, 300e-9, 300e-9), env)
+
+
+@case("CLOCK_PERIOD_ZERO")
+def _(env):
+    from pinlib.physics.pullup import scl_frequency
+    return _fails(lambda e: scl_frequency(0.0, 0.0, 0.0, 0.0), env)
+
+
+@case("LEVELS_OUT_OF_RANGE")
+def _(env):
+    from pinlib.physics.pullup import capacitance_from_rise
+    return _fails(lambda e: capacitance_from_rise(100e-9, 1e3, 10e-12, lo=0.7, hi=0.3), env)
+
+
+@case("RISE_FASTER_THAN_PROBE")
+def _(env):
+    from pinlib.physics.pullup import capacitance_from_rise
+    return _fails(lambda e: capacitance_from_rise(1e-12, 1e3, 10e-12), env)
+
+
+# ---------------------------------------------------------------- engines: physics.waveform
+RAMP_T = [0.0, 1e-9, 2e-9, 3e-9]
+RAMP_V = [0.0, 0.5, 1.0, 1.0]
+GRID = [k * 5e-12 for k in range(801)]
+SECTION = [(50.0, 1e-9)]
+
+
+def _waveform():
+    from pinlib.physics import waveform
+    return waveform
+
+
+@case("UNKNOWN_EDGE")
+def _(env):
+    return _fails(lambda e: _waveform().threshold_delay(RAMP_T, RAMP_V, 0.5, edge="up"), env)
+
+
+@case("TIME_NOT_1D")
+def _(env):
+    return _fails(lambda e: _waveform().edge_time([0.0], [0.0], 1.0), env)
+
+
+@case("SAMPLES_NOT_ON_TIME_AXIS")
+def _(env):
+    return _fails(lambda e: _waveform().edge_time(RAMP_T, RAMP_V[:3], 1.0), env)
+
+
+@case("EDGE_NO_SWING")
+def _(env):
+    return _fails(lambda e: _waveform().edge_time(RAMP_T, RAMP_V, 0.0), env)
+
+
+@case("EDGE_LEVELS_OUT_OF_ORDER")
+def _(env):
+    return _fails(lambda e: _waveform().edge_time(RAMP_T, RAMP_V, 1.0, lo=0.9, hi=0.1), env)
+
+
+@case("VIH_NOT_ABOVE_VIL")
+def _(env):
+    return _fails(lambda e: _waveform().recrossings(RAMP_T, RAMP_V, 0.7, 0.3), env)
+
+
+@case("NEGATIVE_SOURCE_OR_LOAD")
+def _(env):
+    return _fails(lambda e: _waveform().lumped_response(RAMP_T, 1.0, 0.0, -1.0, 1e-12), env)
+
+
+@case("TIME_GRID_FORM")
+def _(env):
+    return _fails(lambda e: _waveform().distributed_response(
+        [1e-12, 2e-12], 1.0, 0.0, 50.0, SECTION, 0.0), env)
+
+
+@case("TIME_GRID_NOT_UNIFORM")
+def _(env):
+    return _fails(lambda e: _waveform().distributed_response(
+        [0.0, 1e-12, 3e-12], 1.0, 0.0, 50.0, SECTION, 0.0), env)
+
+
+@case("SECTION_NOT_A_PAIR")
+def _(env):
+    return _fails(lambda e: _waveform().distributed_response(
+        GRID, 1.0, 0.0, 50.0, [50.0], 0.0), env)
+
+
+@case("Z0_NOT_POSITIVE")
+def _(env):
+    return _fails(lambda e: _waveform().distributed_response(
+        GRID, 1.0, 0.0, 50.0, [(0.0, 1e-9)], 0.0), env)
+
+
+@case("SECTION_DELAY_FORM")
+def _(env):
+    return _fails(lambda e: _waveform().distributed_response(
+        GRID, 1.0, 0.0, 50.0, [(50.0, -1e-9)], 0.0), env)
+
+
+@case("TIME_STEP_TOO_COARSE")
+def _(env):
+    return _fails(lambda e: _waveform().distributed_response(
+        GRID, 1.0, 0.0, 50.0, [(50.0, 1e-13)], 0.0), env)
+
+
+@case("MID_JUNCTION_OUT_OF_RANGE")
+def _(env):
+    return _fails(lambda e: _waveform().distributed_response(
+        GRID, 1.0, 0.0, 50.0, SECTION, 0.0, c_mid=1e-12, mid_junction=5), env)
+
+
+# ---------------------------------------------------------------- engines: physics.lines
+@case("PARAMETER_NOT_A_NUMBER", M.PARAMETER_NOT_A_NUMBER.format(name="w"))
+def _(env):
+    from pinlib.physics.lines import microstrip
+    return _fails(lambda e: microstrip("wide", 0.18e-3, 4.2), env)
+
+
+@case("PARAMETER_OUT_OF_RANGE", M.PARAMETER_OUT_OF_RANGE.format(name="w"))
+def _(env):
+    from pinlib.physics.lines import microstrip
+    return _fails(lambda e: microstrip(-0.2e-3, 0.18e-3, 4.2), env)
+
+
+@case("UNKNOWN_LINE_METHOD", M.UNKNOWN_LINE_METHOD.format(kind="microstrip"))
+def _(env):
+    from pinlib.physics.lines import microstrip
+    return _fails(lambda e: microstrip(0.2e-3, 0.18e-3, 4.2, method="guess"), env)
+
+
+@case("SHAPES_DO_NOT_BROADCAST")
+def _(env):
+    from pinlib.physics.lines import microstrip
+    return _fails(lambda e: microstrip([0.2e-3, 0.3e-3], [0.1e-3, 0.2e-3, 0.3e-3], 4.2), env)
+
+
+@case("UNKNOWN_LINE_KIND")
+def _(env):
+    from pinlib.physics.lines import line_methods
+    return _fails(lambda e: line_methods("coax", 0.2e-3, 0.18e-3, 4.2), env)
+
+
 @pytest.mark.parametrize(("name", "expected", "trigger"), CASES)
 def test_message(name, expected, trigger, tmp_path, monkeypatch, capsys):
     text = getattr(M, name)

@@ -22,6 +22,7 @@ from typing import NamedTuple
 
 import numpy as np
 
+from pinlib import messages as M
 from pinlib.errors import InputError, ValidityWarning
 
 __all__ = [
@@ -175,7 +176,8 @@ def _as_float_array(value, name: str) -> np.ndarray:
         arr = np.asarray(value, dtype=float)
     except (TypeError, ValueError):
         raise InputError(
-            f"parameter '{name}' is not a number", field=name, value=value, expected="a float [SI]"
+            M.PARAMETER_NOT_A_NUMBER.format(name=name), field=name, value=value,
+            expected="a float [SI]",
         ) from None
     return arr
 
@@ -188,7 +190,7 @@ def _require(arr: np.ndarray, ok: np.ndarray, name: str, expected: str) -> None:
     bad = ~ok
     if np.any(bad):
         raise InputError(
-            f"parameter '{name}' is out of range",
+            M.PARAMETER_OUT_OF_RANGE.format(name=name),
             field=name,
             value=_first_bad(arr, np.broadcast_to(bad, arr.shape)),
             expected=expected,
@@ -199,7 +201,7 @@ def _check_method(kind: str, method: str) -> None:
     choices = _METHODS[kind]
     if method not in choices:
         raise InputError(
-            f"unknown {kind} method",
+            M.UNKNOWN_LINE_METHOD.format(kind=kind),
             field="method",
             value=method,
             expected="one of " + ", ".join(repr(m) for m in choices),
@@ -221,7 +223,7 @@ def _geometry(kind: str, w, h, er, t, hname: str):
         w, h, er, t = np.broadcast_arrays(w, h, er, t)
     except ValueError:
         raise InputError(
-            "parameters w, h/b, er, t have shapes that do not broadcast",
+            M.SHAPES_DO_NOT_BROADCAST,
             field="w",
             value=tuple(np.shape(a) for a in (w, h, er, t)),
             expected="arrays of one shape, or scalars",
@@ -687,7 +689,7 @@ def line_methods(kind: str, w, h, er, t=0.0) -> list[str]:
     """
     if kind not in _METHODS:
         raise InputError(
-            "unknown line kind",
+            M.UNKNOWN_LINE_KIND,
             field="kind",
             value=kind,
             expected="one of " + ", ".join(repr(k) for k in _METHODS),

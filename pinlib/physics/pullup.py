@@ -24,6 +24,7 @@ from typing import NamedTuple
 
 import numpy as np
 
+from pinlib import messages as M
 from pinlib.errors import InputError
 from pinlib.physics.rc import RISE_10_90, RISE_30_70
 
@@ -52,14 +53,14 @@ def _arr(x, name: str) -> np.ndarray:
     try:
         return np.asarray(x, dtype=float)
     except (TypeError, ValueError):
-        raise InputError("not a number", field=name, value=x, expected="a float [SI]") from None
+        raise InputError(M.NOT_A_NUMBER, field=name, value=x, expected="a float [SI]") from None
 
 
 def _positive(x, name: str, unit: str, *, allow_inf: bool = False) -> np.ndarray:
     a = _arr(x, name)
     ok = (a > 0) & (np.isfinite(a) | (allow_inf & np.isposinf(a)))
     if not np.all(ok):
-        raise InputError("value must be positive", field=name, value=x,
+        raise InputError(M.MUST_BE_POSITIVE, field=name, value=x,
                          expected=f"a number > 0 {unit}")
     return a
 
@@ -67,7 +68,7 @@ def _positive(x, name: str, unit: str, *, allow_inf: bool = False) -> np.ndarray
 def _non_negative(x, name: str, unit: str) -> np.ndarray:
     a = _arr(x, name)
     if not np.all(np.isfinite(a) & (a >= 0)):
-        raise InputError("value must be finite and not negative", field=name, value=x,
+        raise InputError(M.MUST_BE_FINITE_NON_NEGATIVE, field=name, value=x,
                          expected=f"a number >= 0 {unit}")
     return a
 
@@ -103,7 +104,7 @@ def parallel(*resistances):
     1803.3
     """
     if not resistances:
-        raise InputError("no resistances given", field="resistances")
+        raise InputError(M.NO_RESISTANCES, field="resistances")
     arrays = [_positive(r, "resistances", "[Ω]", allow_inf=True) for r in resistances]
     g = sum(1.0 / a for a in np.broadcast_arrays(*arrays))
     with np.errstate(divide="ignore"):
@@ -365,7 +366,7 @@ def fall_time_bound(rp, cb, vdd, v_ol, i_ol, v_hi, v_lo, r_series=0.0):
     v_hi = _arr(v_hi, "v_hi")
     v_lo = _arr(v_lo, "v_lo")
     if not np.all(v_hi > v_lo):
-        raise InputError("the upper level must be above the lower", field="v_hi", value=v_hi,
+        raise InputError(M.UPPER_NOT_ABOVE_LOWER, field="v_hi", value=v_hi,
                          expected="v_hi > v_lo [V]")
     r = v_ol / i_ol + r_s
     v_knee = i_ol * r
@@ -535,12 +536,12 @@ def scl_frequency(t_low, t_high, tr, tf):
     for x, n in ((t_low, "t_low"), (t_high, "t_high"), (tr, "tr"), (tf, "tf")):
         a = _arr(x, n)
         if not np.all((a >= 0) & ~np.isnan(a)):
-            raise InputError("value must not be negative", field=n, value=x,
+            raise InputError(M.MUST_NOT_BE_NEGATIVE, field=n, value=x,
                              expected="a time >= 0 [s]")
         parts.append(a)
     total = sum(parts)  # an unbounded edge (inf) gives 0 Hz
     if not np.all(total > 0):
-        raise InputError("the clock period is zero", field="t_low", expected="a period > 0 s")
+        raise InputError(M.CLOCK_PERIOD_ZERO, field="t_low", expected="a period > 0 s")
     return _out(1.0 / total)
 
 
@@ -640,13 +641,13 @@ def capacitance_from_rise(t_measured, rp, c_probe, *, lo=0.3, hi=0.7):
     c_probe = _non_negative(c_probe, "c_probe", "[F]")
     lo_a, hi_a = _arr(lo, "lo"), _arr(hi, "hi")
     if not (np.all((lo_a >= 0) & (hi_a < 1) & (hi_a > lo_a))):
-        raise InputError("measuring levels out of range", field="lo/hi", value=(lo, hi),
+        raise InputError(M.LEVELS_OUT_OF_RANGE, field="lo/hi", value=(lo, hi),
                          expected="0 <= lo < hi < 1")
     k = np.log1p(-lo_a) - np.log1p(-hi_a)
     c_total = t / (rp * k)
     cb = c_total - c_probe
     if not np.all(cb > 0):
-        raise InputError("the measured rise is faster than the probe alone allows",
+        raise InputError(M.RISE_FASTER_THAN_PROBE,
                          field="t_measured", value=t_measured,
                          expected=f"a rise longer than k·Rp·C_probe "
                                   f"= {float(np.min(k * rp * c_probe)):.3g} s")

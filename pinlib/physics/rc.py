@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from pinlib import messages as M
 from pinlib.errors import InputError
 
 __all__ = [
@@ -53,7 +54,7 @@ def _fraction(value, name: str, *, allow_zero: bool = True) -> np.ndarray:
     low_ok = f >= 0.0 if allow_zero else f > 0.0
     if not np.all(low_ok & (f < 1.0)):
         raise InputError(
-            "fraction of the final value out of range",
+            M.FRACTION_OUT_OF_RANGE,
             field=name,
             value=value,
             expected="0 <= fraction < 1" if allow_zero else "0 < fraction < 1",
@@ -65,7 +66,7 @@ def _non_negative(value, name: str, unit: str) -> np.ndarray:
     x = np.asarray(value, dtype=float)
     if not np.all(np.isfinite(x) & (x >= 0.0)):
         raise InputError(
-            "value must be finite and not negative",
+            M.MUST_BE_FINITE_NON_NEGATIVE,
             field=name,
             value=value,
             expected=f"a number >= 0 {unit}",
@@ -77,7 +78,7 @@ def _positive(value, name: str, unit: str) -> np.ndarray:
     x = np.asarray(value, dtype=float)
     if not np.all(np.isfinite(x) & (x > 0.0)):
         raise InputError(
-            "value must be finite and positive",
+            M.MUST_BE_FINITE_POSITIVE,
             field=name,
             value=value,
             expected=f"a number > 0 {unit}",
@@ -166,7 +167,7 @@ def rc_rise_time(r, c, lo=0.3, hi=0.7):
     lo = _fraction(lo, "lo")
     hi = _fraction(hi, "hi")
     if not np.all(hi > lo):
-        raise InputError("upper level must be above the lower level", field="hi", value=hi,
+        raise InputError(M.UPPER_NOT_ABOVE_LOWER, field="hi", value=hi,
                          expected=f"hi > lo = {lo}")
     r = _non_negative(r, "r", "[Ω]")
     c = _non_negative(c, "c", "[F]")
@@ -211,10 +212,10 @@ def smbus_rise_factor(vdd, v_lo=0.65, v_hi=1.50):
     v_lo = _non_negative(v_lo, "v_lo", "[V]")
     v_hi = _positive(v_hi, "v_hi", "[V]")
     if not np.all(v_hi > v_lo):
-        raise InputError("upper level must be above the lower level", field="v_hi",
+        raise InputError(M.UPPER_NOT_ABOVE_LOWER, field="v_hi",
                          value=v_hi, expected=f"v_hi > v_lo = {v_lo} [V]")
     if not np.all(vdd > v_hi):
-        raise InputError("supply does not reach the upper measuring level", field="vdd",
+        raise InputError(M.SUPPLY_BELOW_UPPER_LEVEL, field="vdd",
                          value=vdd, expected=f"vdd > v_hi = {v_hi} [V]")
     return np.log((vdd - v_lo) / (vdd - v_hi))
 
@@ -290,7 +291,7 @@ def rp_min(vdd, v_ol, i_ol):
     v_ol = _non_negative(v_ol, "v_ol", "[V]")
     i_ol = _positive(i_ol, "i_ol", "[A]")
     if not np.all(vdd > v_ol):
-        raise InputError("low level is not below the supply", field="v_ol", value=v_ol,
+        raise InputError(M.LOW_LEVEL_NOT_BELOW_SUPPLY, field="v_ol", value=v_ol,
                          expected=f"v_ol < vdd = {vdd} [V]")
     return (vdd - v_ol) / i_ol
 
@@ -403,6 +404,15 @@ def ramp_rc_crossing(fraction, t_ramp, tau):
     f = _fraction(fraction, "fraction")
     t_ramp = _non_negative(t_ramp, "t_ramp", "[s]")
     tau = _non_negative(tau, "tau", "[s]")
+    return _ramp_rc_crossing(f, t_ramp, tau)
+
+
+def _ramp_rc_crossing(f, t_ramp, tau):
+    """:func:`ramp_rc_crossing` without the input checks, for solver loops.
+
+    The caller guarantees float arrays with ``0 <= f < 1``, ``t_ramp >= 0`` and
+    ``tau >= 0`` (all finite); the arithmetic is the same, so are the results.
+    """
     f, t_ramp, tau = np.broadcast_arrays(f, t_ramp, tau)
 
     has_tau = tau > 0.0
@@ -465,6 +475,6 @@ def ramp_rc_edge_time(t_ramp, tau, lo=0.1, hi=0.9):
     lo_a = _fraction(lo, "lo")
     hi_a = _fraction(hi, "hi")
     if not np.all(hi_a > lo_a):
-        raise InputError("upper level must be above the lower level", field="hi",
+        raise InputError(M.UPPER_NOT_ABOVE_LOWER, field="hi",
                          value=hi, expected=f"hi > lo = {lo}")
     return ramp_rc_crossing(hi_a, t_ramp, tau) - ramp_rc_crossing(lo_a, t_ramp, tau)

@@ -29,6 +29,7 @@ from typing import NamedTuple
 
 import numpy as np
 
+from pinlib import messages as M
 from pinlib.errors import InputError, ValidityWarning
 from pinlib.physics.rc import ramp_rc_response
 
@@ -109,17 +110,17 @@ def _edge_sign(edge: str) -> float:
         return 1.0
     if edge == "fall":
         return -1.0
-    raise InputError("unknown edge", field="edge", value=edge, expected="'rise' or 'fall'")
+    raise InputError(M.UNKNOWN_EDGE, field="edge", value=edge, expected="'rise' or 'fall'")
 
 
 def _time_axis(t, v) -> tuple[np.ndarray, np.ndarray]:
     t = np.asarray(t, dtype=float)
     v = np.asarray(v, dtype=float)
     if t.ndim != 1 or t.size < 2:
-        raise InputError("time must be a 1-D array of at least two samples", field="t",
+        raise InputError(M.TIME_NOT_1D, field="t",
                          value=t.shape, expected="shape (n,), n >= 2")
     if v.shape[-1:] != t.shape:
-        raise InputError("waveform samples do not match the time axis", field="v",
+        raise InputError(M.SAMPLES_NOT_ON_TIME_AXIS, field="v",
                          value=v.shape, expected=f"shape (..., {t.size})")
     return t, v
 
@@ -190,10 +191,10 @@ def edge_time(t, v, v_final, lo=0.1, hi=0.9, *, v_initial=0.0):
     v_initial = np.asarray(v_initial, dtype=float)
     swing = np.asarray(v_final, dtype=float) - v_initial
     if not np.all(swing != 0.0):
-        raise InputError("edge has no swing", field="v_final", value=v_final,
+        raise InputError(M.EDGE_NO_SWING, field="v_final", value=v_final,
                          expected=f"a level different from v_initial = {v_initial} [V]")
     if not 0.0 <= lo < hi <= 1.0:
-        raise InputError("edge levels out of order", field="lo, hi", value=(lo, hi),
+        raise InputError(M.EDGE_LEVELS_OUT_OF_ORDER, field="lo, hi", value=(lo, hi),
                          expected="0 <= lo < hi <= 1")
     u = (v - v_initial[..., None]) / swing[..., None]
     t_lo, k_lo, _ = _first_upward(t, u, lo)
@@ -326,7 +327,7 @@ def recrossings(t, v, v_il, v_ih, *, edge="rise"):
     v_il = np.asarray(v_il, dtype=float)
     v_ih = np.asarray(v_ih, dtype=float)
     if not np.all(v_ih > v_il):
-        raise InputError("VIH must be above VIL", field="v_ih", value=v_ih,
+        raise InputError(M.VIH_NOT_ABOVE_VIL, field="v_ih", value=v_ih,
                          expected=f"v_ih > v_il = {v_il} [V]")
     # Mirror a falling edge onto a rising one: its entry threshold is VIL.
     u = sign * v
@@ -417,7 +418,7 @@ def lumped_response(t, vdd, t_ramp, r_source, c_load, *, edge="rise"):
     vdd, t_ramp, r_source, c_load = np.broadcast_arrays(
         *(np.asarray(x, dtype=float) for x in (vdd, t_ramp, r_source, c_load)))
     if not np.all(r_source >= 0.0) or not np.all(c_load >= 0.0):
-        raise InputError("source resistance and load capacitance must not be negative",
+        raise InputError(M.NEGATIVE_SOURCE_OR_LOAD,
                          field="r_source, c_load", value=(r_source, c_load),
                          expected="values >= 0 [Ω], [F]")
     rise = vdd[..., None] * ramp_rc_response(t, t_ramp[..., None],
@@ -525,12 +526,12 @@ def distributed_response(t, vdd, t_ramp, r_source, sections, c_load, c_mid=None,
     sign = _edge_sign(edge)
     t = np.asarray(t, dtype=float)
     if t.ndim != 1 or t.size < 2 or t[0] != 0.0:
-        raise InputError("time grid must be 1-D, start at 0 and hold at least two samples",
+        raise InputError(M.TIME_GRID_FORM,
                          field="t", value=t[:3] if t.ndim == 1 else t.shape,
                          expected="np.arange(n) * dt")
     dt = (t[-1] - t[0]) / (t.size - 1)
     if not dt > 0.0 or not np.allclose(np.diff(t), dt, rtol=_GRID_RTOL, atol=0.0):
-        raise InputError("time grid must be uniform and increasing", field="t",
+        raise InputError(M.TIME_GRID_NOT_UNIFORM, field="t",
                          value=f"steps {np.diff(t).min():.3g} to {np.diff(t).max():.3g} s",
                          expected="np.arange(n) * dt")
     n_t = t.size
@@ -541,20 +542,20 @@ def distributed_response(t, vdd, t_ramp, r_source, sections, c_load, c_mid=None,
         try:
             z0, td = section
         except (TypeError, ValueError):
-            raise InputError("a line section must be a pair (z0, td)",
+            raise InputError(M.SECTION_NOT_A_PAIR,
                              field=f"sections[{k}]", value=section,
                              expected="(z0 [Ω], td [s])") from None
         z0 = np.asarray(z0, dtype=float)
         if not np.all(np.isfinite(z0) & (z0 > 0.0)):
-            raise InputError("characteristic impedance must be positive",
+            raise InputError(M.Z0_NOT_POSITIVE,
                              field=f"sections[{k}].z0", value=z0, expected="z0 > 0 [Ω]")
         if np.ndim(td) != 0 or not (math.isfinite(float(td)) and float(td) >= 0.0):
-            raise InputError("section delay must be one number >= 0",
+            raise InputError(M.SECTION_DELAY_FORM,
                              field=f"sections[{k}].td", value=td, expected="td >= 0 [s]")
         td = float(td)
         steps = int(round(td / dt))
         if td > 0.0 and steps == 0:
-            raise InputError("time step too coarse for a line section",
+            raise InputError(M.TIME_STEP_TOO_COARSE,
                              field=f"sections[{k}].td", value=td,
                              expected=f"td >= dt/2 = {dt / 2:.3g} s (or a finer grid)")
         if td > 0.0 and abs(steps * dt - td) > _DELAY_ROUNDING_WARN * td:
@@ -576,7 +577,7 @@ def distributed_response(t, vdd, t_ramp, r_source, sections, c_load, c_mid=None,
         mid_junction = 0  # nothing is placed there
     if not isinstance(mid_junction, (int, np.integer)) or not (
             0 <= mid_junction <= n_sections_in):
-        raise InputError("junction for c_mid out of range", field="mid_junction",
+        raise InputError(M.MID_JUNCTION_OUT_OF_RANGE, field="mid_junction",
                          value=mid_junction, expected=f"an integer 0..{n_sections_in}")
 
     # ---- batch ----------------------------------------------------------------------
@@ -590,7 +591,7 @@ def distributed_response(t, vdd, t_ramp, r_source, sections, c_load, c_mid=None,
     for name, a, unit in (("t_ramp", ramp_b, "[s]"), ("r_source", rs_b, "[Ω]"),
                           ("c_load", cl_b, "[F]"), ("c_mid", cm_b, "[F]")):
         if not np.all(np.isfinite(a) & (a >= 0.0)):
-            raise InputError("value must be finite and not negative", field=name,
+            raise InputError(M.MUST_BE_FINITE_NON_NEGATIVE, field=name,
                              value=a, expected=f"values >= 0 {unit}")
 
     # ---- node conductances, capacitances and companion coefficients ---------------

@@ -19,6 +19,7 @@ from types import MappingProxyType
 
 import numpy as np
 
+from pinlib import messages as M
 from pinlib.errors import InputError
 
 __all__ = [
@@ -61,13 +62,13 @@ def _check_vdd(vdd) -> np.ndarray:
         arr = np.asarray(vdd, dtype=float)
     except (TypeError, ValueError):
         raise InputError(
-            "not a number", field="vdd", value=vdd, expected="a supply voltage in volts"
+            M.NOT_A_NUMBER, field="vdd", value=vdd, expected="a supply voltage in volts"
         ) from None
     bad = ~(np.isfinite(arr) & (arr > 0))
     if np.any(bad):
         first = arr[bad].flat[0] if arr.ndim else float(arr)
         raise InputError(
-            "supply voltage must be positive and finite",
+            M.SUPPLY_NOT_POSITIVE_FINITE,
             field="vdd",
             value=float(first),
             expected="a supply voltage > 0 V",
@@ -218,7 +219,7 @@ class I2cMode:
         limits = [f.name for f in fields(self) if f.name not in _META_FIELDS]
         if field not in limits:
             raise InputError(
-                "not an I2C mode limit", field="field", value=field,
+                M.NOT_AN_I2C_LIMIT, field="field", value=field,
                 expected="one of " + ", ".join(limits),
             )  # fmt: skip
         return self.source_io if field in _IO_FIELDS else self.source_bus
@@ -479,7 +480,7 @@ def i2c_mode(name: str) -> I2cMode:
     key = name.strip().lower() if isinstance(name, str) else None
     if key not in I2C_MODES:
         raise InputError(
-            "unknown I2C mode",
+            M.UNKNOWN_I2C_MODE,
             field="mode",
             value=name,
             expected="one of " + ", ".join(I2C_MODE_NAMES),

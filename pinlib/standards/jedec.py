@@ -19,6 +19,7 @@ from types import MappingProxyType
 
 import numpy as np
 
+from pinlib import messages as M
 from pinlib.errors import InputError
 
 __all__ = [
@@ -36,13 +37,13 @@ def _check_vdd(vdd) -> np.ndarray:
         arr = np.asarray(vdd, dtype=float)
     except (TypeError, ValueError):
         raise InputError(
-            "not a number", field="vdd", value=vdd, expected="a supply voltage in volts"
+            M.NOT_A_NUMBER, field="vdd", value=vdd, expected="a supply voltage in volts"
         ) from None
     bad = ~(np.isfinite(arr) & (arr > 0))
     if np.any(bad):
         first = arr[bad].flat[0] if arr.ndim else float(arr)
         raise InputError(
-            "supply voltage must be positive and finite",
+            M.SUPPLY_NOT_POSITIVE_FINITE,
             field="vdd",
             value=float(first),
             expected="a supply voltage > 0 V",
@@ -310,7 +311,7 @@ def logic_levels(name: str) -> LogicLevels:
     key = name.strip().lower() if isinstance(name, str) else None
     if key not in LOGIC_LEVELS:
         raise InputError(
-            "unknown logic-level set",
+            M.UNKNOWN_LOGIC_LEVELS,
             field="levels",
             value=name,
             expected="one of " + ", ".join(LOGIC_LEVEL_NAMES),

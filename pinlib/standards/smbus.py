@@ -22,6 +22,7 @@ from types import MappingProxyType
 
 import numpy as np
 
+from pinlib import messages as M
 from pinlib.errors import InputError
 
 __all__ = [
@@ -169,7 +170,7 @@ class SmbusClass:
         limits = [f.name for f in fields(self) if f.name not in _META_FIELDS]
         if field not in limits:
             raise InputError(
-                "not an SMBus class limit", field="field", value=field,
+                M.NOT_AN_SMBUS_LIMIT, field="field", value=field,
                 expected="one of " + ", ".join(limits),
             )  # fmt: skip
         return self.source_dc if field in _DC_FIELDS else self.source_ac
@@ -371,7 +372,7 @@ def smbus_class(name: str) -> SmbusClass:
     key = name.strip().lower() if isinstance(name, str) else None
     if key not in SMBUS_CLASSES:
         raise InputError(
-            "unknown SMBus class",
+            M.UNKNOWN_SMBUS_CLASS,
             field="mode",
             value=name,
             expected="one of " + ", ".join(SMBUS_CLASS_NAMES),
@@ -461,13 +462,13 @@ def rise_rc_factor(cls, vdd):
         v = np.asarray(vdd, dtype=float)
     except (TypeError, ValueError):
         raise InputError(
-            "not a number", field="vdd", value=vdd, expected="a supply voltage in volts"
+            M.NOT_A_NUMBER, field="vdd", value=vdd, expected="a supply voltage in volts"
         ) from None
     bad = ~(np.isfinite(v) & (v > v_hi))
     if np.any(bad):
         first = v[bad].flat[0] if v.ndim else float(v)
         raise InputError(
-            "supply too low for the SMBus rise-time points",
+            M.SUPPLY_BELOW_SMBUS_POINTS,
             field="vdd",
             value=float(first),
             expected=f"a finite supply above {v_hi:.2f} V",
