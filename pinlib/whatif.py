@@ -26,9 +26,9 @@ pin capacitance, worst thresholds) stay what they are: they are limits, not spre
 
 Everything is vectorized: a batch of boards goes through
 :func:`pinlib.buses.odbatch.build` in one numpy pass (in chunks, for the progress
-bar).  Push-pull buses (SPI, GPIO) are not sampled: their engine simulates each edge in
-time and has no vectorized form yet; the result says so and their worst-case result
-stands.
+bar).  Push-pull buses (SPI, GPIO) go through :func:`pinlib.buses.ppbatch.build`:
+supplies, line lengths and extra line capacitance drawn, each distinct board evaluated
+by the push-pull engine itself (not vectorized yet).
 
 References
 ----------
@@ -49,6 +49,7 @@ import numpy as np
 
 from pinlib.buses import odbatch as ob
 from pinlib.buses import opendrain as od
+from pinlib.buses import ppbatch as ppb
 from pinlib.design import Bus, Design, Segment
 from pinlib.errors import InputError
 from pinlib.progress import progress_bar
@@ -196,7 +197,8 @@ def _nominal(design: Design) -> dict:
     """The engine's (worst-case) result of each open-drain bus, by id."""
     from pinlib.check import evaluate_bus
 
-    return {b.id: evaluate_bus(b, design) for b in design.buses if b.protocol in _OPEN_DRAIN}
+    return {b.id: evaluate_bus(b, design) for b in design.buses
+            if b.protocol in _OPEN_DRAIN + ppb.PROTOCOLS}
 
 
 def _collected(design: Design) -> dict:
@@ -232,7 +234,16 @@ def parameters(design: Design, *, bus: str | None = None, collected=None) -> lis
     refs = _refs(design)
     out, seen = [], set()
     for b in design.buses:
-        if b.id not in collected or (bus is not None and b.id != bus):
+        if bus is not None and b.id != bus:
+            continue
+        if b.protocol in ppb.PROTOCOLS:
+            for spec in ppb.parameter_specs(b):
+                p = Parameter(*spec)
+                if p.key not in seen:
+                    seen.add(p.key)
+                    out.append(p)
+            continue
+        if b.id not in collected:
             continue
         for p in _bus_parameters(b, collected[b.id][1], refs):
             if p.key not in seen:
@@ -305,6 +316,15 @@ class Sampled(ob.Scenario):
 
     def spread(self, seg):
         return 0.0
+
+    def factors(self, bus) -> dict:
+        """Factor of each parameter of a push-pull bus, shape ``(n,)``, by key."""
+        out = {}
+        for spec in ppb.parameter_specs(bus):
+            f = self._factor(spec[-1])
+            if f is not None:
+                out[spec[-1]] = f[:, 0]
+        return out
 
 
 def draw(rng: np.random.Generator, n: int, k: int, distribution: str = "uniform"):
@@ -590,9 +610,21 @@ def _fmt_margin(m) -> str:
 
 
 def _not_sampled(design: Design, what: str = "not sampled") -> list[str]:
-    return [f"bus {b.id} ({b.protocol}): {what} — the push-pull engine simulates each edge "
-            "in time and has no vectorized model yet; its worst-case result stands"
-            for b in design.buses if b.protocol not in _OPEN_DRAIN]
+    notes = [f"bus {b.id} ({b.protocol}): {what}"
+             for b in design.buses if b.protocol not in _OPEN_DRAIN + ppb.PROTOCOLS]
+    for b in design.buses:
+        if b.protocol in ppb.PROTOCOLS and any(d.capacitance_tolerance for d in b.devices):
+            notes.append(f"bus {b.id} ({b.protocol}): device pin capacitance tolerances are "
+                         "not drawn (the pins keep their stored values)")
+    return notes
+
+
+def _names(bus: Bus, bb, nominal) -> list[dict]:
+    """As :func:`_check_names`, for an open-drain or a push-pull batch."""
+    if isinstance(bb, ppb.PpBatch):
+        return [{"name": nm["name"], "engine": nm["engine"], "segment": "", "where": bus.id}
+                for nm in bb.names]
+    return _check_names(bus, bb, nominal)
 
 
 def _sensitivities(u: np.ndarray, columns: list, params: list[Parameter]) -> list:
@@ -708,13 +740,16 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
             u_all[start:start + m] = u
             scen = Sampled(u, params)
             for bus in design.buses:
-                if bus.id not in collected:
+                if bus.protocol in ppb.PROTOCOLS:
+                    bb = ppb.build(bus, design, scen.factors(bus), m, nominal=nominal[bus.id])
+                elif bus.id in collected:
+                    bb = ob.build(bus, design, scen, collected=collected[bus.id])
+                else:
                     continue
-                bb = ob.build(bus, design, scen, collected=collected[bus.id])
                 st = stores.get(bus.id)
                 if st is None:
                     st = stores[bus.id] = {
-                        "names": _check_names(bus, bb, nominal[bus.id]),
+                        "names": _names(bus, bb, nominal[bus.id]),
                         "checks": [c for _, c in bb.checks()],
                         "margin": [None if c.margin is None else np.empty(n)
                                    for _, c in bb.checks()],
@@ -892,17 +927,20 @@ def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
     nominal = _nominal(design)
     collected = _collected(design)
     out, methods, per_bus = [], {}, {}
-    bar = progress_bar(len(collected), desc="corners", unit="bus", enabled=progress)
+    sampled = [b for b in design.buses if b.id in collected or b.protocol in ppb.PROTOCOLS]
+    bar = progress_bar(len(sampled), desc="corners", unit="bus", enabled=progress)
     with bar:
-        for bus in design.buses:
-            if bus.id not in collected:
-                continue
+        for bus in sampled:
             params = parameters(design, bus=bus.id, collected=collected)
             per_bus[bus.id] = params
             k = len(params)
 
             def run(u, bus=bus, params=params):
-                return ob.build(bus, design, Sampled(u, params), collected=collected[bus.id])
+                scen = Sampled(u, params)
+                if bus.protocol in ppb.PROTOCOLS:
+                    return ppb.build(bus, design, scen.factors(bus), scen.n,
+                                     nominal=nominal[bus.id])
+                return ob.build(bus, design, scen, collected=collected[bus.id])
 
             if k <= exhaustive_limit:
                 verts = (np.array(list(itertools.product((-1.0, 1.0), repeat=k))) if k
@@ -918,7 +956,7 @@ def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
                 methods[bus.id] = (f"{k} parameters: each screened alone at both ends, then "
                                    "the combined corner improved one flip at a time")
             bb_w = run(worst)
-            names = _check_names(bus, bb_w, nominal[bus.id])
+            names = _names(bus, bb_w, nominal[bus.id])
             checks = [c for _, c in bb_w.checks()]
             gains = _gains(run, worst, k, len(checks))
             for j, (nm, c) in enumerate(zip(names, checks, strict=True)):

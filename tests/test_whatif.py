@@ -7,6 +7,7 @@ from __future__ import annotations
 import json
 import math
 import re
+from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
@@ -222,9 +223,57 @@ def test_zero_tolerances_on_the_demo_design(tmp_path):
             assert e.id == m.id
             if e.margin is not None:
                 assert np.all(m.margins == e.margin), m.name
-    # the SPI buses are not sampled, and the result says so
-    assert any("bus flash (spi): not sampled" in n for n in mc.notes)
-    assert set(mc.buses) == {"sensors", "power"}
+    # the push-pull buses (SPI flash, GPIO display) are sampled too: every board, every
+    # line and timing check equals the engine's result (derived from check_design)
+    assert set(mc.buses) == {"sensors", "power", "flash", "display"}
+    for bus in ("flash", "display"):
+        engine = pp_checks(nominal, bus)
+        mine = [c for c in mc.checks if c.bus == bus]
+        assert [c.id for c in mine] == [c.id for _, c in engine]
+        for (sig, e), m in zip(engine, mine, strict=True):
+            assert m.signal == sig
+            if e.margin is not None:
+                assert all(_same(float(x), e.margin) for x in m.margins), m.name
+            if m.values is not None:
+                assert all(_same(float(x), float(e.value)) for x in m.values), m.name
+            assert m.passes.passes == (16 if e.status != "fail" else 0)
+
+
+def pp_checks(result, bus_id):
+    b = result.bus(bus_id)
+    return [(ln.signal, c) for ln in b.lines for c in ln.checks] + [(None, c) for c in b.checks]
+
+
+def test_a_drawn_spi_board_equals_the_engine_on_that_board(tmp_path):
+    text = DEMO.read_text(encoding="utf-8").replace(
+        'id = "flash"\n', 'id = "flash"\nsupply_tolerance = "5 %"\nlength_tolerance = "20 %"\n', 1)
+    path = tmp_path / "tol.toml"
+    path.write_text(text, encoding="utf-8")
+    d = load_design(path)
+    mc = whatif.monte_carlo(d, 3, seed=11)
+    cols = {p.key: i for i, p in enumerate(mc.parameters)}
+    flash = d.bus("flash")
+    for j in range(3):
+        u = mc.draws[j]
+        k = cols[("rail", 3.3, 0.05)]
+        vdd = 3.3 * (1 + 0.05 * u[k])
+        lines = {}
+        for sig, line in flash.lines.items():
+            f = 1 + 0.2 * u[cols[("line-length", "flash", sig)]]
+            lines[sig] = replace(line, sections=tuple(replace(s, length=s.length * f)
+                                                      for s in line.sections))
+        board = replace(flash, supply=vdd, lines=lines)
+        other = replace(d, buses=tuple(board if b.id == "flash" else b for b in d.buses))
+        engine = pp_checks(check_design(other), "flash")
+        mine = [c for c in mc.checks if c.bus == "flash"]
+        assert len(mine) == len(engine)
+        # derived from check_design of the board rebuilt at the drawn values
+        for (_, e), m in zip(engine, mine, strict=True):
+            if e.margin is not None and math.isfinite(e.margin):
+                assert m.margins[j] == pytest.approx(e.margin, rel=1e-6, abs=1e-12), m.name
+    assert any(c.varies for c in mc.checks if c.bus == "flash")
+    cr = whatif.corners(d)
+    assert cr.methods["flash"] == "all 32 corners of 5 parameters"
 
 
 # --------------------------------------------------------------------------- the RC rise

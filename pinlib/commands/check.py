@@ -18,7 +18,7 @@ examples:
   pinlib check board.toml --corners         # the worst corner of each check
   pinlib check board.toml --monte-carlo 100000 --seed 7   # yield over the tolerances
 
---corners and --monte-carlo cover the I2C and SMBus buses: every tolerance (rails,
+--corners and --monte-carlo cover I2C, SMBus, SPI and GPIO buses: every tolerance (rails,
 pull-ups, series resistors, capacitance_tolerance, length_tolerance) at its ends, or
 drawn at random (uniform, or normal with the tolerance at 3 sigma when the design says
 distribution = "normal"). Monte Carlo reports each check's pass fraction with a 95 %
@@ -56,11 +56,12 @@ def add_parser(sub) -> None:
                    help="list figures that moved more than this against the saved result "
                         "(default 5%%)")
     p.add_argument("--corners", action="store_true",
-                   help="also find each check's worst corner of the tolerances (I2C, SMBus)")
+                   help="also find each check's worst corner of the tolerances "
+                        "(I2C, SMBus, SPI, GPIO)")
     p.add_argument("--monte-carlo", metavar="N", type=samples_type, default=None,
                    dest="monte_carlo",
                    help="also draw N boards within the tolerances and report each check's "
-                        "pass fraction (I2C, SMBus)")
+                        "pass fraction (I2C, SMBus, SPI, GPIO)")
     p.add_argument("--seed", metavar="S", type=seed_type, default=None,
                    help="seed of the Monte Carlo draws (repeatable runs)")
     p.add_argument("--progress", action="store_true",
