@@ -420,6 +420,9 @@ class _Problem:
         self.times = times
         self.lo = lo
         self.hi = hi
+        self._levels2 = np.concatenate([np.broadcast_to(np.asarray(lo, dtype=float), loads.shape),
+                                        np.broadcast_to(np.asarray(hi, dtype=float), loads.shape)])
+        self._loads2 = np.concatenate([loads, loads])
         self.t_ref = float(times.max())
         self.r_ref = float(np.median(times) / (rc.RISE_10_90 * np.median(loads)))
         r_lo = _R_LOW_FACTOR * float(times.min()) / float(loads.max())
@@ -432,7 +435,13 @@ class _Problem:
         return self.r_ref * np.exp(x0)
 
     def model(self, r_out, t_ramp):
-        return rc.ramp_rc_edge_time(t_ramp, r_out * self.loads, self.lo, self.hi)
+        # Both crossings of every point in one unchecked call (the fit loop evaluates
+        # this hundreds of times; fit_driver has checked the inputs once): the same
+        # element-wise arithmetic as rc.ramp_rc_edge_time, so the same results.
+        n = self.loads.size
+        tau = r_out * self._loads2
+        t = rc._ramp_rc_crossing(self._levels2, np.asarray(t_ramp, dtype=float), tau)
+        return t[n:] - t[:n]
 
     def residual(self, x):
         return self.model(self.r_out(x[0]), x[1] * self.t_ref) / self.times - 1.0
@@ -440,7 +449,9 @@ class _Problem:
     def grid_cost(self, x0_grid, x1_grid):
         r = self.r_out(np.asarray(x0_grid))[:, None, None]
         t = (np.asarray(x1_grid) * self.t_ref)[None, :, None]
-        rel = rc.ramp_rc_edge_time(t, r * self.loads, self.lo, self.hi) / self.times - 1.0
+        tau = r * self.loads
+        edge = rc._ramp_rc_crossing(self.hi, t, tau) - rc._ramp_rc_crossing(self.lo, t, tau)
+        rel = edge / self.times - 1.0
         return np.sum(rel * rel, axis=-1)
 
 

@@ -31,6 +31,10 @@ def _command() -> list[str]:
 def _run(args: list[str]) -> None:
     env = dict(os.environ)
     env.pop("PINLIB_LIBRARY", None)
+    # An installed pinlib runs from cached bytecode; this workplace sets
+    # PYTHONDONTWRITEBYTECODE, which would make every timed run recompile the package.
+    # median_time's warm-up run writes the cache.
+    env.pop("PYTHONDONTWRITEBYTECODE", None)
     proc = subprocess.run(args, cwd=ROOT, capture_output=True, text=True, env=env, check=False)
     if proc.returncode not in (0, 1):
         raise RuntimeError(f"{' '.join(args)} exited {proc.returncode}: {proc.stderr[-500:]}")
