@@ -30,6 +30,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from pinlib import messages as M
 from pinlib.buses import odbatch as ob
 from pinlib.buses import opendrain as od
 from pinlib.compare import can_serve
@@ -226,7 +227,7 @@ def positions(design: Design, ref: str) -> list[tuple[Bus, Device]]:
     out = [(b, d) for b in design.buses for d in b.devices if d.ref == ref]
     if not out:
         refs = sorted({d.ref for b in design.buses for d in b.devices})
-        raise DesignError("no device with this reference", file=str(design.path or ""),
+        raise DesignError(M.NO_SUCH_REFERENCE, file=str(design.path or ""),
                           field="REF", value=ref, hint="devices: " + ", ".join(refs))
     return out
 
@@ -264,7 +265,7 @@ def eligible(design: Design, ref: str, categories=None) -> tuple[list[Part], int
     cats = set(categories or ())
     unknown = cats - set(CATEGORIES)
     if unknown:
-        raise InputError("unknown category", field="category", value=sorted(unknown)[0],
+        raise InputError(M.UNKNOWN_CATEGORY, field="category", value=sorted(unknown)[0],
                          expected="one of " + ", ".join(CATEGORIES))
     out, excluded = [], 0
     for _pid, part in sorted(design.library.placeable().items()):

@@ -14,11 +14,13 @@ unit, e.g. ``"Bus capacitance Cb (pF)"``, with the values scaled to that unit.
 from __future__ import annotations
 
 import math
-from collections.abc import Mapping, Sequence
+from collections.abc import Callable, Mapping, Sequence
+from contextvars import ContextVar
 from typing import TYPE_CHECKING
 
 import numpy as np
 
+from pinlib import messages as M
 from pinlib.errors import InputError
 from pinlib.quantity import format_si
 
@@ -49,6 +51,7 @@ __all__ = [
     "waveforms",
     "timing_budget",
     "histogram",
+    "spec",
     "to_svg",
 ]
 
@@ -97,16 +100,48 @@ def _alt():
     return alt
 
 
+# While spec() builds a chart, each layer's rows are held here and the altair objects get
+# a named placeholder instead: altair deep-copies and walks every row it holds (most of a
+# redraw for a waveform), while the rows are already plain JSON values.
+_DEFERRED: ContextVar[list | None] = ContextVar("pinlib_charts_deferred", default=None)
+_TOKEN = "pinlib-deferred-"
+
+
+def _data(values: list):
+    """``alt.Data`` of ``values``, or a placeholder for them while :func:`spec` builds."""
+    alt = _alt()
+    held = _DEFERRED.get()
+    if held is None:
+        return alt.Data(values=values)
+    for i, rows in enumerate(held):  # equal rows, one name: altair hoists shared data
+        if rows == values:
+            return alt.Data(name=f"{_TOKEN}{i}")
+    held.append(values)
+    return alt.Data(name=f"{_TOKEN}{len(held) - 1}")
+
+
+def _fill(node, held: list):
+    """``node`` with every placeholder replaced by the rows it stands for."""
+    if isinstance(node, dict):
+        name = node.get("name")
+        if len(node) == 1 and isinstance(name, str) and name.startswith(_TOKEN):
+            return {"values": held[int(name[len(_TOKEN):])]}
+        return {k: _fill(v, held) for k, v in node.items()}
+    if isinstance(node, list):
+        return [_fill(v, held) for v in node]
+    return node
+
+
 def _array(x, field: str, *, ndim: int | tuple[int, ...] = 1) -> np.ndarray:
     """``x`` as a float array of the allowed dimension(s), or an InputError naming it."""
     try:
         a = np.asarray(x, dtype=float)
     except (TypeError, ValueError):
-        raise InputError("not a number or an array of numbers", field=field,
+        raise InputError(M.NOT_NUMBERS, field=field,
                          value=_short(x), expected="floats in SI units") from None
     dims = (ndim,) if isinstance(ndim, int) else ndim
     if a.ndim not in dims:
-        raise InputError(f"array with {a.ndim} dimension(s)", field=field,
+        raise InputError(M.ARRAY_DIMENSIONS.format(ndim=a.ndim), field=field,
                          value=_short(x),
                          expected=" or ".join(f"{d}-D" for d in dims) + " array")
     return a
@@ -116,10 +151,10 @@ def _scalar(x, field: str, *, positive: bool = False) -> float:
     try:
         v = float(x)
     except (TypeError, ValueError):
-        raise InputError("not a number", field=field, value=_short(x),
+        raise InputError(M.NOT_A_NUMBER, field=field, value=_short(x),
                          expected="a float in SI units") from None
     if not math.isfinite(v) or (positive and v <= 0.0):
-        raise InputError("cannot be drawn", field=field, value=v,
+        raise InputError(M.CANNOT_BE_DRAWN, field=field, value=v,
                          expected="a finite positive value" if positive else "a finite value")
     return v
 
@@ -285,7 +320,7 @@ def pullup_window(cb, rp_min, rp_max, *, chosen_cb, chosen_rp,
         lo = np.broadcast_to(_array(rp_min, "rp_min", ndim=(0, 1)), c.shape)
         hi = np.broadcast_to(_array(rp_max, "rp_max", ndim=(0, 1)), c.shape)
     except ValueError:
-        raise InputError("rp_min and rp_max must be floats or arrays as long as cb",
+        raise InputError(M.RP_BOUNDS_SHAPE,
                          field="rp_max", value=f"{np.shape(rp_min)}, {np.shape(rp_max)}",
                          expected=f"shape {c.shape}") from None
     x0 = _scalar(chosen_cb, "chosen_cb", positive=True)
@@ -293,7 +328,7 @@ def pullup_window(cb, rp_min, rp_max, *, chosen_cb, chosen_rp,
     ok_lo = _keep(c, lo, positive=(True, True))
     ok_hi = _keep(c, hi, positive=(True, True))
     if not ok_lo.any() and not ok_hi.any():
-        raise InputError("no point of the window can be drawn on log axes", field="cb",
+        raise InputError(M.WINDOW_NOT_DRAWABLE, field="cb",
                          expected="positive finite cb with positive rp_min/rp_max")
 
     fx, ux = display_scale(np.append(c[ok_lo | ok_hi], x0), "F", log=True)
@@ -316,13 +351,13 @@ def pullup_window(cb, rp_min, rp_max, *, chosen_cb, chosen_rp,
                 for a, b in zip(c[ok_hi], hi[ok_hi])])
     point = [{"cb": _num(x0 * fx), "rp": _num(y0 * fy), "series": chosen_label}]
 
-    area = alt.Chart(alt.Data(values=band)).mark_area(opacity=_REGION_OPACITY).encode(
+    area = alt.Chart(_data(band)).mark_area(opacity=_REGION_OPACITY).encode(
         x=_q("cb", x_title, log=True), y=_q("lo", y_title, log=True, channel="y"),
         y2="hi:Q", color=colour)
-    curves = alt.Chart(alt.Data(values=lines)).mark_line(strokeWidth=2).encode(
+    curves = alt.Chart(_data(lines)).mark_line(strokeWidth=2).encode(
         x=_q("cb", x_title, log=True), y=_q("rp", y_title, log=True, channel="y"),
         color=colour, detail="series:N")
-    marker = alt.Chart(alt.Data(values=point)).mark_point(
+    marker = alt.Chart(_data(point)).mark_point(
         shape="diamond", filled=True, size=140, opacity=1).encode(
         x=_q("cb", x_title, log=True), y=_q("rp", y_title, log=True, channel="y"),
         color=colour,
@@ -371,7 +406,7 @@ def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
     y = _array(edge_times, "edge_times", ndim=(1, 2))
     y2 = y[np.newaxis, :] if y.ndim == 1 else y
     if y2.shape[1] != x.size:
-        raise InputError("edge_times do not match loads", field="edge_times",
+        raise InputError(M.EDGE_TIMES_NOT_LOADS, field="edge_times",
                          value=f"shape {y.shape}", expected=f"{x.size} values per curve")
     if series is None:
         names = ["model"] if y2.shape[0] == 1 else [f"curve {i + 1}" for i in
@@ -379,28 +414,28 @@ def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
     else:
         names = [series] if isinstance(series, str) else [str(s) for s in series]
     if len(names) != y2.shape[0] or len(set(names)) != len(names):
-        raise InputError("series needs one distinct name per curve", field="series",
+        raise InputError(M.SERIES_NAMES, field="series",
                          value=names, expected=f"{y2.shape[0]} distinct names")
 
     px = py = np.zeros(0)
     plabels: list[str] = []
     if points is not None:
         if len(points) != 3:
-            raise InputError("points must be (loads, times, labels)", field="points",
+            raise InputError(M.POINTS_FORM, field="points",
                              value=_short(points), expected="a 3-tuple")
         px = _array(points[0], "points.loads", ndim=(0, 1)).ravel()
         py = _array(points[1], "points.times", ndim=(0, 1)).ravel()
         lab = points[2]
         plabels = [lab] * px.size if isinstance(lab, str) else [str(s) for s in lab]
         if not (px.size == py.size == len(plabels)):
-            raise InputError("points: loads, times and labels differ in length",
+            raise InputError(M.POINTS_LENGTHS,
                              field="points",
                              value=f"{px.size}, {py.size}, {len(plabels)}",
                              expected="equal lengths")
     op = None
     if operating is not None:
         if len(operating) not in (2, 3):
-            raise InputError("operating must be (load, time) or (load, time, label)",
+            raise InputError(M.OPERATING_FORM,
                              field="operating", value=_short(operating),
                              expected="a 2- or 3-tuple")
         op = (_scalar(operating[0], "operating.load", positive=log_x),
@@ -411,7 +446,7 @@ def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
     ok = _keep(xs, ys, positive=(log_x, log_y))
     okp = _keep(px, py, positive=(log_x, log_y))
     if not ok.any():
-        raise InputError("no point of the curves can be drawn", field="edge_times",
+        raise InputError(M.CURVES_NOT_DRAWABLE, field="edge_times",
                          expected="finite values (positive on a log axis)")
     all_x = np.concatenate([xs[ok], px[okp], [op[0]] if op else []])
     all_y = np.concatenate([ys[ok], py[okp], [op[1]] if op else []])
@@ -430,19 +465,19 @@ def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
 
     rows = [{"load": _num(a * fx), "t": _num(b * fy), "series": names[k]}
             for k in range(y2.shape[0]) for a, b in zip(xs[k][ok[k]], ys[k][ok[k]])]
-    layers = [alt.Chart(alt.Data(values=rows)).mark_line(strokeWidth=2).encode(
+    layers = [alt.Chart(_data(rows)).mark_line(strokeWidth=2).encode(
         x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
         color=colour, detail="series:N")]
     tips = [alt.Tooltip("load:Q", title=x_title), alt.Tooltip("t:Q", title=y_title)]
     if okp.any():
         pts = [{"load": _num(a * fx), "t": _num(b * fy), "series": s, "kind": "datasheet"}
                for a, b, s, keep in zip(px, py, plabels, okp) if keep]
-        layers.append(alt.Chart(alt.Data(values=pts)).mark_point(
+        layers.append(alt.Chart(_data(pts)).mark_point(
             filled=True, size=90, opacity=1).encode(
             x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
             color=colour, shape=shape, tooltip=[*tips, alt.Tooltip("series:N", title="part")]))
     if op:
-        layers.append(alt.Chart(alt.Data(values=[
+        layers.append(alt.Chart(_data([
             {"load": _num(op[0] * fx), "t": _num(op[1] * fy), "kind": op[2]}])).mark_point(
             filled=True, size=160, opacity=1, color=OPERATING).encode(
             x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
@@ -485,20 +520,21 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
     alt = _alt()
     tt = _array(t, "t")
     if not isinstance(traces, Mapping) or not traces:
-        raise InputError("traces must be a non-empty mapping of label to voltages",
+        raise InputError(M.TRACES_FORM,
                          field="traces", value=_short(traces),
                          expected="{label: array of V}")
     vs = {}
     for label, v in traces.items():
         a = _array(v, f"traces[{label!r}]")
         if a.shape != tt.shape:
-            raise InputError("trace and time differ in length", field=f"traces[{label!r}]",
+            raise InputError(M.LENGTHS_DIFFER.format(a="trace", b="time"),
+                             field=f"traces[{label!r}]",
                              value=a.size, expected=f"{tt.size} samples")
         vs[str(label)] = a
     lo = _scalar(v_il, "v_il")
     hi = _scalar(v_ih, "v_ih")
     if lo > hi:
-        raise InputError("VIL above VIH", field="v_il", value=lo,
+        raise InputError(M.VIL_ABOVE_VIH, field="v_il", value=lo,
                          expected=f"at most v_ih = {hi}")
     top = None if vdd is None else _scalar(vdd, "vdd")
 
@@ -513,14 +549,14 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
     fixed = [band_label, threshold_label] + ([vdd_label] if vdd_label else [])
     fixed_colours = [UNDEFINED, LIMIT] + ([INK] if vdd_label else [])
     if set(names) & set(fixed):
-        raise InputError("a trace label is also a legend entry of the chart", field="traces",
+        raise InputError(M.LABEL_IN_LEGEND.format(what="trace label"), field="traces",
                          value=sorted(set(names) & set(fixed)), expected="other labels")
     colour = alt.Color("series:N",
                        scale=_scale_pair(fixed + names,
                                          fixed_colours + _colours(names, fixed_colours)),
                        legend=_legend(None))
 
-    band = alt.Chart(alt.Data(values=[{"lo": _num(lo * fy), "hi": _num(hi * fy),
+    band = alt.Chart(_data([{"lo": _num(lo * fy), "hi": _num(hi * fy),
                                        "series": band_label}])).mark_rect(
         opacity=_BAND_OPACITY).encode(y=_q("lo", y_title, channel="y"), y2="hi:Q",
                                       color=colour)
@@ -528,15 +564,15 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
                "text": f"VIL {lo * fy:.3g} {uy}"},
               {"v": _num(hi * fy), "series": threshold_label,
                "text": f"VIH {hi * fy:.3g} {uy}"}]
-    rules = alt.Chart(alt.Data(values=levels)).mark_rule(strokeDash=[6, 3]).encode(
+    rules = alt.Chart(_data(levels)).mark_rule(strokeDash=[6, 3]).encode(
         y=_q("v", y_title, channel="y"), color=colour)
-    words = alt.Chart(alt.Data(values=levels)).mark_text(
+    words = alt.Chart(_data(levels)).mark_text(
         align="right", baseline="bottom", dx=-4, dy=-2, fontSize=10, fontWeight="bold",
         color=LIMIT).encode(x=alt.value(width), y=_q("v", y_title, channel="y"),
                             text="text:N")
     layers = [band, rules, words]
     if vdd_label:
-        layers.append(alt.Chart(alt.Data(values=[{"v": _num(top * fy), "series": vdd_label}]))
+        layers.append(alt.Chart(_data([{"v": _num(top * fy), "series": vdd_label}]))
                       .mark_rule(strokeDash=[2, 3]).encode(
                           y=_q("v", y_title, channel="y"), color=colour))
     rows = []
@@ -545,7 +581,7 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
         ok = _keep(tt, a, positive=(False, False))
         rows += [{"t": _num(p * fx), "v": _num(q * fy), "series": name}
                  for p, q in zip(tt[ok], a[ok])]
-    layers.append(alt.Chart(alt.Data(values=rows)).mark_line(strokeWidth=1.8).encode(
+    layers.append(alt.Chart(_data(rows)).mark_line(strokeWidth=1.8).encode(
         x=_q("t", x_title), y=_q("v", y_title, channel="y"), color=colour,
         detail="series:N"))
     return _titled(alt.layer(*layers), title, subtitle, width, height)
@@ -589,12 +625,12 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
         try:
             path, comp, dur = row
         except (TypeError, ValueError):
-            raise InputError("a budget row must be (path, component, duration)",
+            raise InputError(M.BUDGET_ROW_FORM,
                              field=f"rows[{i}]", value=_short(row),
                              expected="a 3-tuple") from None
         items.append((str(path), str(comp), _scalar(dur, f"rows[{i}].duration")))
     if not items:
-        raise InputError("no budget rows", field="rows", expected="at least one row")
+        raise InputError(M.NO_BUDGET_ROWS, field="rows", expected="at least one row")
     paths = _unique(p for p, _, _ in items)
     comps = _unique(c for _, c, _ in items)
 
@@ -608,12 +644,12 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
     marg = {str(k): _scalar(v, f"margins[{k!r}]") for k, v in (margins or {}).items()}
     unknown = sorted((set(avail) | set(marg) | set(status or {})) - set(paths))
     if unknown:
-        raise InputError("unknown path", field="available/margins/status", value=unknown,
+        raise InputError(M.UNKNOWN_PATH, field="available/margins/status", value=unknown,
                          expected=f"one of {paths}")
     stat = {p: (status or {}).get(p, "pass" if m >= 0.0 else "fail") for p, m in marg.items()}
     bad = sorted(s for s in stat.values() if s not in STATUS_COLOURS)
     if bad:
-        raise InputError("unknown status", field="status", value=bad,
+        raise InputError(M.UNKNOWN_STATUS, field="status", value=bad,
                          expected="'pass', 'warn' or 'fail'")
 
     # Display prefix from the longest stack or available time (display only).
@@ -624,7 +660,7 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
     fixed = ([available_label] if avail else []) + statuses
     fixed_colours = ([LIMIT] if avail else []) + [STATUS_COLOURS[s] for s in statuses]
     if set(comps) & set(fixed):
-        raise InputError("a component name is also a legend entry of the chart",
+        raise InputError(M.LABEL_IN_LEGEND.format(what="component name"),
                          field="rows", value=sorted(set(comps) & set(fixed)),
                          expected="other names")
     colour = alt.Color("series:N",
@@ -635,7 +671,7 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
 
     bars = [{"path": p, "series": c, "t": _num(d * fx), "order": i}
             for i, (p, c, d) in enumerate(items)]
-    layers = [alt.Chart(alt.Data(values=bars)).mark_bar(
+    layers = [alt.Chart(_data(bars)).mark_bar(
         height={"band": 0.6}, stroke="white", strokeWidth=1).encode(
         x=alt.X("t:Q", stack="zero", axis=_axis(x_title)), y=y, color=colour,
         order="order:Q",
@@ -644,13 +680,13 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
     if avail:
         ticks = [{"path": p, "t": _num(v * fx), "series": available_label}
                  for p, v in avail.items()]
-        layers.append(alt.Chart(alt.Data(values=ticks)).mark_tick(
+        layers.append(alt.Chart(_data(ticks)).mark_tick(
             thickness=3, bandSize=0, size=26, opacity=1).encode(
             x=alt.X("t:Q", axis=_axis(x_title)), y=y, color=colour))
     if marg:
         notes = [{"path": p, "text": f"margin {'+' if m >= 0 else ''}{format_si(m, 's')}",
                   "series": stat[p]} for p, m in marg.items()]
-        layers.append(alt.Chart(alt.Data(values=notes)).mark_text(
+        layers.append(alt.Chart(_data(notes)).mark_text(
             align="left", dx=8, fontSize=11, fontWeight="bold").encode(
             x=alt.value(width), y=y, text="text:N", color=colour))
     return _titled(alt.layer(*layers), title, subtitle, width,
@@ -703,13 +739,13 @@ def histogram(samples, *, limit=None, unit: str, label: str, limit_kind: str = "
     s = _array(samples, "samples", ndim=(1, 2)).ravel()
     s = s[np.isfinite(s)]
     if s.size == 0:
-        raise InputError("no finite sample", field="samples", expected="finite values")
+        raise InputError(M.NO_FINITE_SAMPLE, field="samples", expected="finite values")
     if limit_kind not in ("max", "min"):
-        raise InputError("unknown limit kind", field="limit_kind", value=limit_kind,
+        raise InputError(M.UNKNOWN_LIMIT_KIND, field="limit_kind", value=limit_kind,
                          expected="'max' or 'min'")
     n = int(bins)
     if n < 1:
-        raise InputError("too few bins", field="bins", value=bins, expected="at least 1")
+        raise InputError(M.TOO_FEW_BINS, field="bins", value=bins, expected="at least 1")
     lim = None if limit is None else _scalar(limit, "limit")
     lo, hi = float(s.min()), float(s.max())
     if lim is not None:
@@ -749,7 +785,7 @@ def histogram(samples, *, limit=None, unit: str, label: str, limit_kind: str = "
     colour = alt.Color("series:N", scale=_scale_pair(domain, colours), legend=_legend(None))
     bars = [{"a": _num(edges[i] * fx), "b": _num(edges[i + 1] * fx), "n": int(counts[i]),
              "z": 0, "series": str(status[i])} for i in range(counts.size)]
-    layers = [alt.Chart(alt.Data(values=bars)).mark_rect(
+    layers = [alt.Chart(_data(bars)).mark_rect(
         opacity=0.85, stroke="white", strokeWidth=0.5).encode(
         x=alt.X("a:Q", axis=_axis(x_title), scale=alt.Scale(zero=False)), x2="b:Q",
         y=alt.Y("n:Q", axis=alt.Axis(title=count_label, format="~s")), y2="z:Q",
@@ -757,7 +793,7 @@ def histogram(samples, *, limit=None, unit: str, label: str, limit_kind: str = "
         tooltip=[alt.Tooltip("a:Q", title="from"), alt.Tooltip("b:Q", title="to"),
                  alt.Tooltip("n:Q", title="samples")])]
     if lim is not None:
-        layers.append(alt.Chart(alt.Data(values=[{"x": _num(lim * fx), "series": lim_label}]))
+        layers.append(alt.Chart(_data([{"x": _num(lim * fx), "series": lim_label}]))
                       .mark_rule(strokeWidth=2, strokeDash=[6, 3]).encode(
                           x=alt.X("x:Q", axis=_axis(x_title)), color=colour))
     return _titled(alt.layer(*layers), title if title is not None else f"Monte Carlo: {label}",
@@ -765,6 +801,37 @@ def histogram(samples, *, limit=None, unit: str, label: str, limit_kind: str = "
 
 
 # --------------------------------------------------------------------------- output
+def spec(build: Callable[..., object], *args, **kwargs) -> dict:
+    """The Vega-Lite specification of ``build(*args, **kwargs)`` as a plain dict, fast.
+
+    The same dict as ``build(...).to_dict(validate=False)``, built without handing the
+    data rows to altair (which copies and walks each of them) and without altair's
+    schema checks; for redraws, where :func:`to_svg` takes the dict as it is.
+
+    Parameters
+    ----------
+    build : callable
+        A chart function of this module, e.g. :func:`waveforms`. [1]
+    *args, **kwargs
+        Its arguments. [1]
+
+    Returns
+    -------
+    dict
+        The specification, data values inline in each layer.
+    """
+    from altair.utils import schemapi
+
+    held: list = []
+    token = _DEFERRED.set(held)
+    try:
+        with schemapi.debug_mode(False):
+            skeleton = build(*args, **kwargs).to_dict(validate=False)
+    finally:
+        _DEFERRED.reset(token)
+    return _fill(skeleton, held)
+
+
 def _vl_version() -> str | None:
     """The Vega-Lite version altair writes, as vl_convert names it (``"6.4"``)."""
     import altair as alt

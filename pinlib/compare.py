@@ -32,6 +32,7 @@ from typing import Any
 from pydantic import BaseModel
 
 from pinlib import __version__
+from pinlib import messages as M
 from pinlib.errors import InputError
 from pinlib.library.loader import BUILTIN_DIR
 from pinlib.library.schema import Part
@@ -94,7 +95,7 @@ def snapshot_path(design_path) -> Path:
     """
     path = getattr(design_path, "path", design_path)
     if path is None:
-        raise InputError("the design was not loaded from a file, so it has no snapshot place",
+        raise InputError(M.NO_SNAPSHOT_PLACE,
                          field="design", expected="a design loaded with load_design(path)")
     path = Path(path)
     return path.with_name(path.stem + ".result.json") if path.suffix else \
@@ -283,7 +284,7 @@ def snapshot(design, result) -> dict:
     """
     out = dict(result.to_json() if hasattr(result, "to_json") else result)
     if out.get("format") != RESULT_FORMAT:
-        raise InputError("not a result", field="format", value=out.get("format"),
+        raise InputError(M.NOT_A_RESULT, field="format", value=out.get("format"),
                          expected=f'"{RESULT_FORMAT}"')
     design_dir = design.path.parent if design.path else None
     lib = design.library
@@ -328,16 +329,16 @@ def load_snapshot(path) -> dict | None:
     except FileNotFoundError:
         return None
     except OSError as exc:
-        raise InputError(f"cannot read the snapshot: {exc.strerror}", file=str(path)) from None
+        raise InputError(M.CANNOT_READ.format(reason=exc.strerror), file=str(path)) from None
     try:
         data = json.loads(text)
     except json.JSONDecodeError as exc:
-        raise InputError(f"the snapshot is not valid JSON: {exc.msg}", file=str(path),
+        raise InputError(M.SNAPSHOT_NOT_JSON.format(detail=exc.msg), file=str(path),
                          line=exc.lineno,
                          hint="delete it or save a new one with `pinlib check DESIGN --save`"
                          ) from None
     if not isinstance(data, dict) or data.get("format") != RESULT_FORMAT:
-        raise InputError("not a pinlib result snapshot", file=str(path), field="format",
+        raise InputError(M.NOT_A_SNAPSHOT, file=str(path), field="format",
                          value=data.get("format") if isinstance(data, dict) else None,
                          expected=f'"{RESULT_FORMAT}"')
     return data
@@ -371,7 +372,7 @@ def parse_change_threshold(text) -> float:
     """
     value = parse_ratio(text, field="threshold")
     if value < 0:
-        raise InputError("a negative threshold", field="threshold", value=text,
+        raise InputError(M.NEGATIVE_THRESHOLD, field="threshold", value=text,
                          expected="zero or more, e.g. '5 %'")
     return value
 
@@ -480,7 +481,7 @@ def figure_rows(old_result: dict, new_result: dict, *, threshold: float = DEFAUL
     a yes/no or text figure, or one that became undefined, when it differs.
     """
     if threshold < 0:
-        raise InputError("a negative threshold", field="threshold", value=threshold,
+        raise InputError(M.NEGATIVE_THRESHOLD, field="threshold", value=threshold,
                          expected="zero or more")
     old_f, new_f = _figures(old_result), _figures(new_result)
     keys = list(new_f) + [k for k in old_f if k not in new_f]
@@ -809,7 +810,7 @@ def compare(old_snapshot: dict, new_snapshot: dict, *, threshold: float = DEFAUL
     """
     threshold = float(threshold)
     if not threshold >= 0:
-        raise InputError("a negative threshold", field="threshold", value=threshold,
+        raise InputError(M.NEGATIVE_THRESHOLD, field="threshold", value=threshold,
                          expected="zero or more")
     cl = ChangeList(threshold, old_snapshot.get("status"), new_snapshot.get("status"),
                     old_created=old_snapshot.get("created"),
@@ -1077,7 +1078,7 @@ def swapped_text(design, swaps: dict[str, str]) -> str:
                 places[d.ref].append(d.loc)
     for ref, locs in places.items():
         if not locs:
-            raise DesignError("no device with this reference", file=fname, field="swap",
+            raise DesignError(M.NO_SUCH_REFERENCE, file=fname, field="swap",
                               value=ref)
     doc = tomlkit.parse(design.text)
     expected = copy.deepcopy(tomllib.loads(design.text))
@@ -1094,13 +1095,13 @@ def swapped_text(design, swaps: dict[str, str]) -> str:
             want["part"] = swaps[ref]
     text = tomlkit.dumps(doc)
     if tomllib.loads(text) != expected:  # pragma: no cover - a tomlkit defect
-        raise DesignError("editing the design file would change more than the parts",
+        raise DesignError(M.EDIT_CHANGES_MORE,
                           file=fname, hint="edit the part ids by hand")
     check = design_from_text(tomllib.loads(text), text, design.path, library=design.library)
     for ref, part_id in swaps.items():
         for bus in check.buses:
             for d in bus.devices:
                 if d.ref == ref and d.part_id != part_id:  # pragma: no cover - defensive
-                    raise DesignError("the edited design does not hold the new part",
+                    raise DesignError(M.EDIT_LOST_PART,
                                       file=fname, field="swap", value=ref)
     return text

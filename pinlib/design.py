@@ -575,7 +575,7 @@ def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bu
         series = pick("pullup_series", "E24")
         from pinlib.eseries import SERIES_NAMES
         if series.upper() not in SERIES_NAMES:
-            raise err(M.UNKNOWN_SERIES, sloc + ("pullup_series",), value=series,
+            raise err(M.UNKNOWN_NUMBER_SERIES, sloc + ("pullup_series",), value=series,
                       expected="one of " + ", ".join(SERIES_NAMES))
         segments.append(Segment(
             seg_id, supply, pick("supply_tolerance", 0.0), pick("pullup", "auto"),

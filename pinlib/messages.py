@@ -9,11 +9,9 @@ A constant with ``{placeholders}`` is a template, filled with ``str.format``::
 
 ``tests/test_messages.py`` triggers each of them once and checks the text.
 
-Not converted yet (they still write their texts where they raise): the bus engines
-(``pinlib/buses/*``), ``pinlib/physics/driver.py``,
-``pinlib/compare.py``, ``pinlib/candidates.py``, ``pinlib/whatif.py``,
-``pinlib/review.py``, ``pinlib/plotdata.py``, ``pinlib/charts.py``, ``pinlib/widgets.py``
-and the commands ``check``, ``report`` and ``candidates``.  Texts that pydantic writes
+Not converted yet (it still writes its texts where it raises): ``pinlib/review.py``.
+Of the warnings only the validity warning of ``pinlib/physics/lines.py`` is here; the
+others (``warnings.warn`` with a text of their own) are not listed yet.  Texts that pydantic writes
 itself for a value of the wrong type (``Input should be a valid string``) are passed
 through in pydantic's words.  Two ``ValueError`` texts of the converted modules are not
 here because no file or command line reaches them, only a program calling pinlib
@@ -123,7 +121,6 @@ DEVICES_IN_SEGMENTS = "devices go in the segments when a bus has segments"
 KEY_IN_SEGMENTS = "{key} goes in the segments when a bus has segments"
 BUS_NEEDS_PULLUP_SUPPLY = "a bus needs its pull-up supply"
 SUPPLY_NOT_POSITIVE = "the supply must be positive"
-UNKNOWN_SERIES = "unknown preferred-value series"
 BUS_NEEDS_CONTROLLER = "a bus needs a controller"
 BRIDGE_NEEDS_SIDE = "a bridging part names its side in each segment"
 SIDE_ONLY_FOR_BRIDGE = "only a bridging part has sides"
@@ -198,6 +195,99 @@ PARAMETER_OUT_OF_RANGE = "parameter '{name}' is out of range"
 UNKNOWN_LINE_METHOD = "unknown {kind} method"
 SHAPES_DO_NOT_BROADCAST = "parameters w, h/b, er, t have shapes that do not broadcast"
 UNKNOWN_LINE_KIND = "unknown line kind"
+# a ValidityWarning, not an error
+OUTSIDE_VALIDITY = ("{kind} method '{method}': {count} of {size} input(s) outside {range} "
+                    "(e.g. {quantity} = {first}); source: {source}")
+
+# pinlib/physics/driver.py
+NOT_NUMBERS = "not a number or an array of numbers"
+UNKNOWN_MEASURING_LEVELS = "unknown measuring levels"
+NO_EDGE_POINTS = "no edge points"
+LENGTHS_DIFFER = "{a} and {b} differ in length"
+DRIVER_NEEDS_PUSH_PULL = "a driver model needs a push-pull pin"
+
+# ---------------------------------------------------------------- bus engines
+# pinlib/buses/limits.py, opendrain.py, pushpull.py, pushline.py
+NOT_OPEN_DRAIN_BUS = "not an open-drain bus"
+NOT_PUSH_PULL_BUS = "the push-pull engine evaluates spi and gpio buses"
+NO_DRIVER_ON_LINE = "no device drives this line"
+TOO_MANY_TIME_STEPS = "the line's waveform would need {steps} time steps (at most {limit})"
+# pinlib/buses/spi.py
+UNKNOWN_SPI_MODE = "unknown SPI mode"
+NEGATIVE_PERIOD_COEFFICIENT = "a margin's period coefficient must not be negative"
+CONTROLLER_LACKS_PUSH_PULL_PIN = "the controller has no push-pull {function} pin"
+ZERO_LENGTH_NOT_SCALED = "a line of zero length cannot be scaled"
+NO_SUCH_PERIPHERAL = "no such peripheral on the bus"
+NO_T_VALID_TO_VARY = "the peripheral records no t_valid to vary"
+
+# ---------------------------------------------------------------- studies
+# pinlib/compare.py
+NO_SNAPSHOT_PLACE = "the design was not loaded from a file, so it has no snapshot place"
+NOT_A_RESULT = "not a result"
+SNAPSHOT_NOT_JSON = "the snapshot is not valid JSON: {detail}"
+NOT_A_SNAPSHOT = "not a pinlib result snapshot"
+NEGATIVE_THRESHOLD = "a negative threshold"
+EDIT_CHANGES_MORE = "editing the design file would change more than the parts"
+EDIT_LOST_PART = "the edited design does not hold the new part"
+# pinlib/candidates.py
+UNKNOWN_CATEGORY = "unknown category"
+# pinlib/whatif.py
+UNKNOWN_DISTRIBUTION = "unknown distribution"
+NOT_A_PROPORTION = "not a proportion"
+NOT_A_CONFIDENCE = "not a confidence level"
+TOO_FEW_SAMPLES = "too few samples"
+CHUNK_NOT_POSITIVE = "chunk must be positive"
+# pinlib/plotdata.py
+DRAWN_FOR_PROTOCOLS = "{what} is drawn for {protocols} buses"
+NO_EVALUATED_LINE = "no evaluated line of that name on the bus"
+DOES_NOT_DRIVE_LINE = "the device does not drive this line"
+UNKNOWN_OPEN_DRAIN_LINE = "unknown open-drain line"
+NO_SUCH_SEGMENT = "no segment of that id on the bus"
+BUDGET_DOES_NOT_ADD_UP = "the timing budget terms do not add up to the engine's margin"
+
+# ---------------------------------------------------------------- pinlib/charts.py
+ARRAY_DIMENSIONS = "array with {ndim} dimension(s)"
+CANNOT_BE_DRAWN = "cannot be drawn"
+RP_BOUNDS_SHAPE = "rp_min and rp_max must be floats or arrays as long as cb"
+WINDOW_NOT_DRAWABLE = "no point of the window can be drawn on log axes"
+EDGE_TIMES_NOT_LOADS = "edge_times do not match loads"
+SERIES_NAMES = "series needs one distinct name per curve"
+POINTS_FORM = "points must be (loads, times, labels)"
+POINTS_LENGTHS = "points: loads, times and labels differ in length"
+OPERATING_FORM = "operating must be (load, time) or (load, time, label)"
+CURVES_NOT_DRAWABLE = "no point of the curves can be drawn"
+TRACES_FORM = "traces must be a non-empty mapping of label to voltages"
+VIL_ABOVE_VIH = "VIL above VIH"
+LABEL_IN_LEGEND = "a {what} is also a legend entry of the chart"
+BUDGET_ROW_FORM = "a budget row must be (path, component, duration)"
+NO_BUDGET_ROWS = "no budget rows"
+UNKNOWN_PATH = "unknown path"
+UNKNOWN_STATUS = "unknown status"
+NO_FINITE_SAMPLE = "no finite sample"
+UNKNOWN_LIMIT_KIND = "unknown limit kind"
+TOO_FEW_BINS = "too few bins"
+
+# ---------------------------------------------------------------- pinlib/widgets.py
+NOT_A_LISTED_VALUE = "not a value of the {what}"
+UNKNOWN_SETTING = "unknown setting"
+OUTSIDE_CONTROL_RANGE = "outside the control's range"
+PART_NOT_FOR_OPEN_DRAIN_BUS = "the part cannot sit on an open-drain bus here"
+NO_PLACED_PART = "no placed part with this reference"
+FILE_NAME_NEEDED = "a file name is needed"
+NOT_AN_INPUT_PIN = "not an input pin of the part"
+NO_SPI_BUS = "the design has no SPI bus"
+NO_SPI_BUS_OF_ID = "no SPI bus of that id"
+NO_TEAM_PART = "no team part to record into"
+
+# ---------------------------------------------------------------- commands check, report,
+# candidates
+NOT_A_WHOLE_NUMBER = "not a whole number: {text!r}"
+AT_LEAST_ONE = "must be at least 1 (got {n})"
+SEED_NEGATIVE = "a seed is 0 or more"
+SEED_WITHOUT_MONTE_CARLO = "a seed without a Monte Carlo run"
+MONTE_CARLO_UNAVAILABLE = "the Monte Carlo engine is not available in this pinlib"
+REPORT_TARGET_IS_FOLDER = "the report target is a folder"
+REPORT_FOLDER_MISSING = "the report's folder does not exist"
 
 #: The modules whose raise sites take their texts from here.
 MODULES = (
@@ -219,6 +309,21 @@ MODULES = (
     "pinlib.physics.pullup",
     "pinlib.physics.waveform",
     "pinlib.physics.lines",
+    "pinlib.physics.driver",
+    "pinlib.buses.limits",
+    "pinlib.buses.opendrain",
+    "pinlib.buses.pushline",
+    "pinlib.buses.pushpull",
+    "pinlib.buses.spi",
+    "pinlib.compare",
+    "pinlib.candidates",
+    "pinlib.whatif",
+    "pinlib.plotdata",
+    "pinlib.charts",
+    "pinlib.widgets",
+    "pinlib.commands.check",
+    "pinlib.commands.report",
+    "pinlib.commands.candidates",
 )
 
 

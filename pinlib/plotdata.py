@@ -33,6 +33,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from pinlib import messages as M
 from pinlib.design import Bus, Design
 from pinlib.errors import InputError
 from pinlib.physics import driver as drv
@@ -234,7 +235,8 @@ class TimingBudgetData:
 
 def _require_protocol(bus: Bus, allowed: tuple[str, ...], what: str) -> None:
     if bus.protocol not in allowed:
-        raise InputError(f"{what} is drawn for {' and '.join(allowed)} buses", field="bus",
+        raise InputError(M.DRAWN_FOR_PROTOCOLS.format(what=what, protocols=" and ".join(allowed)),
+                         field="bus",
                          value=f"{bus.id} ({bus.protocol})",
                          expected=" or ".join(allowed))
 
@@ -257,7 +259,8 @@ def _gpio_analyses(bus: Bus, design: Design) -> dict:
         if not drivers:
             continue  # the engine refuses such a design; nothing to draw
         out[sig] = analyse_line(sig, line, drivers, eps, receivers, clock=bus.clock,
-                                clock_line=False, warn_margin=design.warn_margin)
+                                clock_line=False, warn_margin=design.warn_margin,
+                                bus_id=bus.id)
     return out
 
 
@@ -293,7 +296,7 @@ def line_analyses(bus: Bus, design: Design, analysis=None) -> dict:
 def _line(bus: Bus, design: Design, signal: str, analysis):
     lines = line_analyses(bus, design, analysis)
     if signal not in lines:
-        raise InputError("no evaluated line of that name on the bus", field="signal",
+        raise InputError(M.NO_EVALUATED_LINE, field="signal",
                          value=signal, expected=", ".join(lines) or "a routed line")
     return lines[signal]
 
@@ -302,7 +305,7 @@ def _case(la, driver: str | None):
     if driver is None:
         driver = next(iter(la.cases))
     if driver not in la.cases:
-        raise InputError("the device does not drive this line", field="driver", value=driver,
+        raise InputError(M.DOES_NOT_DRIVE_LINE, field="driver", value=driver,
                          expected=", ".join(la.cases))
     return driver, la.cases[driver]
 
@@ -347,14 +350,14 @@ def pullup_window_data(bus: Bus, design: Design, segment_id: str | None = None,
 
     _require_protocol(bus, ("i2c", "smbus"), "a pull-up window")
     if signal not in SIGNALS:
-        raise InputError("unknown open-drain line", field="signal", value=signal,
+        raise InputError(M.UNKNOWN_OPEN_DRAIN_LINE, field="signal", value=signal,
                          expected=" or ".join(SIGNALS))
     lim, seg_ins = collect(bus, design)
     ids = [s.segment.id for s in seg_ins]
     seg_in = seg_ins[0] if segment_id is None else next(
         (s for s in seg_ins if s.segment.id == segment_id), None)
     if seg_in is None:
-        raise InputError("no segment of that id on the bus", field="segment_id",
+        raise InputError(M.NO_SUCH_SEGMENT, field="segment_id",
                          value=segment_id, expected=", ".join(ids))
     ln = seg_in.lines[signal]
     cb0 = float(ln.cb)
@@ -637,7 +640,7 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
         # this table does not know would show here rather than draw a wrong bar.
         if not math.isclose(available - used, margin, rel_tol=1e-9,
                             abs_tol=1e-6 * max(abs(available), 1e-15)):
-            raise InputError("the timing budget terms do not add up to the engine's margin",
+            raise InputError(M.BUDGET_DOES_NOT_ADD_UP,
                              field=f"{term.id} {term.subject}",
                              value=f"{available - used!r} against {margin!r}",
                              expected="pinlib.plotdata.BUDGET_COMPONENTS to match "

@@ -47,6 +47,7 @@ from statistics import NormalDist
 
 import numpy as np
 
+from pinlib import messages as M
 from pinlib.buses import odbatch as ob
 from pinlib.buses import opendrain as od
 from pinlib.buses import ppbatch as ppb
@@ -348,7 +349,7 @@ def draw(rng: np.random.Generator, n: int, k: int, distribution: str = "uniform"
         return rng.uniform(-1.0, 1.0, size=(n, k))
     if distribution == "normal":
         return rng.standard_normal(size=(n, k)) / 3.0
-    raise InputError("unknown distribution", field="distribution", value=distribution,
+    raise InputError(M.UNKNOWN_DISTRIBUTION, field="distribution", value=distribution,
                      expected="uniform or normal")
 
 
@@ -388,10 +389,10 @@ def wilson_interval(passes: int, n: int, confidence: float = CONFIDENCE) -> tupl
     (0.2553, 0.3662)
     """
     if n < 1 or passes < 0 or passes > n:
-        raise InputError("not a proportion", field="passes", value=(passes, n),
+        raise InputError(M.NOT_A_PROPORTION, field="passes", value=(passes, n),
                          expected="0 <= passes <= n, n >= 1")
     if not 0 < confidence < 1:
-        raise InputError("not a confidence level", field="confidence", value=confidence,
+        raise InputError(M.NOT_A_CONFIDENCE, field="confidence", value=confidence,
                          expected="between 0 and 1")
     z = NormalDist().inv_cdf(0.5 + confidence / 2.0)
     p = passes / n
@@ -722,9 +723,9 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
     """
     n = int(n)
     if n < 1:
-        raise InputError("too few samples", field="monte-carlo", value=n, expected="at least 1")
+        raise InputError(M.TOO_FEW_SAMPLES, field="monte-carlo", value=n, expected="at least 1")
     if chunk < 1:
-        raise InputError("chunk must be positive", field="chunk", value=chunk)
+        raise InputError(M.CHUNK_NOT_POSITIVE, field="chunk", value=chunk)
     nominal = _nominal(design)
     collected = _collected(design)
     params = parameters(design, collected=collected)

@@ -53,7 +53,8 @@ import numpy as np
 import tomlkit
 
 from pinlib import charts, plotdata
-from pinlib.check import check_design, evaluate_bus
+from pinlib import messages as M
+from pinlib.check import check_design
 from pinlib.design import FORMAT as DESIGN_FORMAT
 from pinlib.design import MODES, Design, design_from_text, load_design
 from pinlib.errors import InputError, LibraryError, PinlibError
@@ -224,7 +225,7 @@ def _closest_option(options, value: float, field: str, what: str) -> float:
     for v in vals:
         if math.isclose(v, float(value), rel_tol=1e-9):
             return v
-    raise InputError(f"not a value of the {what}", field=field, value=value,
+    raise InputError(M.NOT_A_LISTED_VALUE.format(what=what), field=field, value=value,
                      expected=f"one of {format_si(vals[0], 'Ω')} … {format_si(vals[-1], 'Ω')} "
                               f"in E24")
 
@@ -258,12 +259,12 @@ def find_file(path: str | os.PathLike) -> Path:
     p = Path(path)
     if p.is_absolute() or p.exists():
         if not p.exists():
-            raise InputError("file not found", file=str(p))
+            raise InputError(M.FILE_NOT_FOUND, file=str(p))
         return p
     for base in Path.cwd().resolve().parents:
         if (base / p).exists():
             return base / p
-    raise InputError("file not found", file=str(p),
+    raise InputError(M.FILE_NOT_FOUND, file=str(p),
                      hint="looked in the working folder and each folder above it")
 
 
@@ -288,8 +289,8 @@ class ChartView:
     ----------
     widget : ipywidgets.HTML
         What to display.
-    chart : altair chart or None
-        The chart last drawn.
+    chart : altair chart, dict or None
+        The chart last drawn (a dict when it was built by :func:`pinlib.charts.spec`).
     spec : dict or None
         Its Vega-Lite specification.
     svg : str or None
@@ -327,8 +328,9 @@ class ChartView:
         return self.show(chart)
 
     def show(self, chart) -> bool:
-        """Draw ``chart`` in place; False when it is the chart already shown."""
-        spec = chart.to_dict(validate=False)
+        """Draw ``chart`` (an altair chart or its spec as a dict) in place; False when it
+        is the chart already shown."""
+        spec = chart if isinstance(chart, dict) else chart.to_dict(validate=False)
         if spec == self.spec:
             return False
         svg = _inline_svg(charts.to_svg(spec), self.key)
@@ -397,7 +399,7 @@ class _Panel:
         """
         unknown = sorted(set(values) - set(self._setters))
         if unknown:
-            raise InputError("unknown setting", field=unknown[0], value=values[unknown[0]],
+            raise InputError(M.UNKNOWN_SETTING, field=unknown[0], value=values[unknown[0]],
                              expected="one of " + ", ".join(sorted(self._setters)))
         with self._hold():
             for name, value in values.items():
@@ -412,7 +414,7 @@ class _Panel:
             shown = float(value) * scale
             lo, hi = getattr(control, "min", -math.inf), getattr(control, "max", math.inf)
             if not (math.isfinite(shown) and lo <= shown <= hi):
-                raise InputError("outside the control's range", field=name, value=value,
+                raise InputError(M.OUTSIDE_CONTROL_RANGE, field=name, value=value,
                                  expected=f"between {lo / scale:g} and {hi / scale:g} (SI)")
             control.value = shown
 
@@ -422,7 +424,7 @@ class _Panel:
         def setter(value, control=control):
             values = [o[1] if isinstance(o, tuple) else o for o in control.options]
             if value not in values:
-                raise InputError("not one of the choices", field=name, value=value,
+                raise InputError(M.NOT_ALLOWED_VALUE, field=name, value=value,
                                  expected=", ".join(map(str, values)) or "none offered")
             control.value = value
 
@@ -810,7 +812,7 @@ class BusBuilder(_Panel):
     def _set_mode(self, value) -> None:
         modes = MODES[self.protocol.value]
         if value not in modes:
-            raise InputError("unknown mode", field="mode", value=value,
+            raise InputError(M.UNKNOWN_MODE, field="mode", value=value,
                              expected="one of " + ", ".join(modes))
         self.mode.value = value
 
@@ -826,7 +828,7 @@ class BusBuilder(_Panel):
         """Place a part on the bus; return its reference designator (U2, U3...)."""
         self.library.get(part_id, field="peripheral")  # an unknown id names the closest
         if part_id not in self._bus_parts():
-            raise InputError("the part cannot sit on an open-drain bus here", field="peripheral",
+            raise InputError(M.PART_NOT_FOR_OPEN_DRAIN_BUS, field="peripheral",
                              value=part_id, expected="a part with SDA and SCL pins (not a "
                                                      "bridging part or a cable)")
         used = [int(r[1:]) for r, _ in self._peripherals if r[1:].isdigit()] + [1]
@@ -840,7 +842,7 @@ class BusBuilder(_Panel):
         """Take a placed part off the bus by its reference designator."""
         refs = [r for r, _ in self._peripherals]
         if ref not in refs:
-            raise InputError("no placed part with this reference", field="ref", value=ref,
+            raise InputError(M.NO_PLACED_PART, field="ref", value=ref,
                              expected=", ".join(refs) or "none placed")
         self._peripherals = [(r, p) for r, p in self._peripherals if r != ref]
         self._refresh_placed()
@@ -983,7 +985,7 @@ class BusBuilder(_Panel):
     def _save_clicked(self) -> None:
         try:
             if not self.save_path.value.strip():
-                raise InputError("a file name is needed", field="save as",
+                raise InputError(M.FILE_NAME_NEEDED, field="save as",
                                  expected="a path such as board.toml")
             path = self.save(self.save_path.value.strip())
         except PinlibError as err:
@@ -1175,7 +1177,7 @@ class LineExplorer(_Panel):
         """Place a receiving input on the line; return its reference designator."""
         part = self.library.get(part_id, field="receiver")
         if pin not in part.pins or part.pins[pin].drive != "input":
-            raise InputError("not an input pin of the part", field="receiver pin", value=pin,
+            raise InputError(M.NOT_AN_INPUT_PIN, field="receiver pin", value=pin,
                              expected=", ".join(n for n, p in part.pins.items()
                                                 if p.drive == "input") or "none")
         used = [int(r[1:]) for r, _, _ in self._receivers if r[1:].isdigit()] + [1]
@@ -1190,7 +1192,7 @@ class LineExplorer(_Panel):
         """Take a receiver off the line by its reference designator."""
         refs = [r for r, _, _ in self._receivers]
         if ref not in refs:
-            raise InputError("no receiver with this reference", field="ref", value=ref,
+            raise InputError(M.NO_PLACED_PART, field="ref", value=ref,
                              expected=", ".join(refs) or "none placed")
         self._receivers = [x for x in self._receivers if x[0] != ref]
         with self._hold():
@@ -1263,8 +1265,9 @@ class LineExplorer(_Panel):
         self.notes_html.value = _notes_html([br, self.line_result])
 
     def _draw_edges(self, e) -> None:
-        self.edges.draw(lambda: charts.edge_vs_load(
-            e.loads, np.vstack(list(e.curves.values())), series=list(e.curves),
+        self.edges.draw(lambda: charts.spec(
+            charts.edge_vs_load, e.loads, np.vstack(list(e.curves.values())),
+            series=list(e.curves),
             points=e.points if len(e.points[0]) else None,
             operating=(e.operating[0], e.operating[1], f"far end ({e.model} line)"),
             edge_label="Edge time", title=f"Edge time against load: {e.driver}",
@@ -1274,8 +1277,9 @@ class LineExplorer(_Panel):
         if not w.receivers:
             self.waves.clear("no chart: " + "; ".join(w.notes))
             return
-        self.waves.draw(lambda: charts.waveforms(
-            w.t, w.traces, v_il=w.v_il, v_ih=w.v_ih, vdd=w.vdd, title="Far-end waveforms",
+        self.waves.draw(lambda: charts.spec(
+            charts.waveforms, w.t, w.traces, v_il=w.v_il, v_ih=w.v_ih, vdd=w.vdd,
+            title="Far-end waveforms",
             subtitle="at " + ", ".join(w.receivers)))
 
     def static_view(self) -> StaticView:
@@ -1362,11 +1366,11 @@ class SpiBudget(_Panel):
         self._data = tomllib.loads(base.text)
         spi = [b.id for b in base.buses if b.protocol == "spi"]
         if not spi:
-            raise InputError("the design has no SPI bus", field="bus",
+            raise InputError(M.NO_SPI_BUS, field="bus",
                              file=str(base.path) if base.path else None)
         bus = bus or spi[0]
         if bus not in spi:
-            raise InputError("no SPI bus of that id", field="bus", value=bus,
+            raise InputError(M.NO_SPI_BUS_OF_ID, field="bus", value=bus,
                              expected=", ".join(spi))
         self.design = self.bus_result = self.analysis = self.budget_data = None
         self.figures: dict = {}
@@ -1413,7 +1417,7 @@ class SpiBudget(_Panel):
 
     def update(self) -> None:
         """Evaluate the bus at the chosen clock and mode; redraw the budget."""
-        from pinlib.buses.spi import spi_analysis
+        from pinlib.buses.spi import evaluate_spi, spi_analysis
 
         if self._quiet:
             return
@@ -1422,8 +1426,8 @@ class SpiBudget(_Panel):
             design = design_from_text(self.design_data(), self.base.text, self.base.path,
                                       library=self.library)
             bus = design.bus(self.bus.value)
-            br = evaluate_bus(bus, design)
             sa = spi_analysis(bus, design)
+            br = evaluate_spi(bus, design, analysis=sa)  # the lines solved once, not twice
             tb = plotdata.timing_budget_data(bus, design, analysis=sa) if sa.terms else None
         except PinlibError as err:
             self.design = self.bus_result = self.analysis = self.budget_data = None
@@ -1438,8 +1442,9 @@ class SpiBudget(_Panel):
             self.chart.clear("no timing requirement to draw (no peripheral with the signals "
                              "the budget needs)")
         else:
-            self.chart.draw(lambda: charts.timing_budget(
-                tb.rows, available=tb.available, margins=tb.margins, status=tb.status,
+            self.chart.draw(lambda: charts.spec(
+                charts.timing_budget, tb.rows, available=tb.available, margins=tb.margins,
+                status=tb.status,
                 title=f"SPI timing budget, {bus.id} at {format_si(tb.clock, 'Hz')}",
                 subtitle=f"SPI mode {bus.spi_mode}; the tick is the time available"))
         self.status_html.value = _status_line(br, f"Bus {br.id} at "
@@ -1665,7 +1670,7 @@ class PartRecorder(_Panel):
         ``source``."""
         unknown = sorted(set(values) - set(self.controls))
         if unknown:
-            raise InputError("unknown form field", field=unknown[0],
+            raise InputError(M.UNKNOWN_FIELD, field=unknown[0],
                              expected="one of " + ", ".join(self.controls))
         for name, value in values.items():
             self.controls[name].value = value
@@ -1694,7 +1699,7 @@ class PartRecorder(_Panel):
         from pinlib.library.record import record_value
 
         if not self.part.value:
-            self._show({"part": LibraryError("no team part to record into", field="part",
+            self._show({"part": LibraryError(M.NO_TEAM_PART, field="part",
                                              hint="create one in the first form")})
             return None
         if self._check_value():
@@ -1853,7 +1858,7 @@ class SwapExplorer(_Panel):
 
         places = self._places(ref)
         if not places:
-            raise InputError("no device with this reference", field="ref", value=ref,
+            raise InputError(M.NO_SUCH_REFERENCE, field="ref", value=ref,
                              expected=", ".join(v for _, v in self.ref.options))
         part = self.design.library.get(part_id, field="part")
         if part.abstract:

@@ -385,6 +385,19 @@ def test_to_svg_accepts_a_spec_dict_and_json():
     assert charts.to_svg(chart.to_json()) == from_chart
 
 
+@pytest.mark.parametrize("name", sorted(ALL))
+def test_fast_spec_is_the_altair_spec(name):
+    # derived from altair's own Chart.to_dict(): the fast path must give the same dict
+    assert charts.spec(ALL[name]) == ALL[name]().to_dict(validate=False)
+
+
+def test_fast_spec_of_a_one_layer_chart_keeps_altair_hoisting():
+    # derived from altair's own Chart.to_dict() (one layer: data moved to the top level)
+    rows = [("read", "clock to out", 12e-9), ("read", "setup", 5e-9)]
+    assert (charts.spec(charts.timing_budget, rows)
+            == charts.timing_budget(rows).to_dict(validate=False))
+
+
 def test_svg_shows_the_legend_entries():
     texts = re.findall(r"<text[^>]*>([^<]*)</text>", charts.to_svg(_budget()))
     for label in ("flight", "available (half period)", "pass", "fail", "margin +5.5 ns",

@@ -16,6 +16,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from pinlib import messages as M
 from pinlib.errors import DesignError
 from pinlib.library.values import Sourced
 from pinlib.physics.rc import RISE_30_70
@@ -209,5 +210,5 @@ def limits_for(protocol: str, mode: str) -> OpenDrainLimits:
             source_f=f"{smbus_std.SOURCE_AC} (fSMB)",
             _smbus=c,
         )
-    raise DesignError("not an open-drain protocol", field="protocol", value=protocol,
+    raise DesignError(M.NOT_OPEN_DRAIN_BUS, field="protocol", value=protocol,
                       expected="i2c or smbus")

@@ -33,6 +33,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from pinlib import eseries
+from pinlib import messages as M
 from pinlib.buses.limits import OpenDrainLimits, limits_for
 from pinlib.design import Bus, Design, Device, Section, Segment
 from pinlib.errors import DesignError, InputError, ValidityWarning
@@ -409,7 +410,7 @@ def collect(bus: Bus, design: Design) -> tuple[OpenDrainLimits, list[SegmentInpu
         One per segment, in design order.
     """
     if bus.protocol not in ("i2c", "smbus"):
-        raise DesignError("not an open-drain bus", field="protocol", value=bus.protocol,
+        raise DesignError(M.NOT_OPEN_DRAIN_BUS, field="protocol", value=bus.protocol,
                           expected="i2c or smbus")
     lim = limits_for(bus.protocol, bus.mode)
     out = []
@@ -421,7 +422,7 @@ def collect(bus: Bus, design: Design) -> tuple[OpenDrainLimits, list[SegmentInpu
         if lim.rise_definition == "smbus":
             lo, hi = lim.measuring_levels(v[0])
             if v[0] <= float(hi):
-                raise DesignError("the supply does not reach the SMBus rise-time point",
+                raise DesignError(M.SUPPLY_BELOW_SMBUS_POINTS,
                                   field=f"bus.{bus.id}.supply", value=format_si(v[0], "V"),
                                   expected=f"a rail above {float(hi):.2f} V at its minimum")
         # SDA and SCL run side by side: one trace model serves both

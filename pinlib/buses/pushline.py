@@ -63,8 +63,9 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from pinlib import eseries
+from pinlib import messages as M
 from pinlib.design import Bus, Device, Line, Section
-from pinlib.errors import DesignError
+from pinlib.errors import DesignError, InputError
 from pinlib.library.schema import Pin
 from pinlib.physics import driver as drv
 from pinlib.physics import lines as tl
@@ -84,6 +85,7 @@ __all__ = [
     "UNDERSHOOT_RULE",
     "TERMINATION_RULE",
     "SIGNAL_FUNCTION",
+    "MAX_TIME_STEPS",
     "Endpoint",
     "Flight",
     "Stretch",
@@ -143,7 +145,12 @@ _STEPS_PER_DELAY = 50      # steps per shortest section delay (distributed model
 _STEPS_PER_RAMP = 50       # steps per source ramp
 _STEPS_PER_TAU = 50        # steps per driver time constant
 _MIN_STEPS = 4000          # steps over the whole record, at least
-_MAX_STEPS = 400_000       # and at most
+_MAX_STEPS = 400_000       # and at most, where the shortest section delay allows it
+#: Hard limit on the steps of one waveform record.  The step must divide the shortest
+#: section delay, so a line whose shortest delay is tiny against the record (a long cable
+#: beside a stub of a trace) would need more than ``_MAX_STEPS``; past this many the
+#: engine refuses the line (an InputError naming it) rather than allocate the grid.
+MAX_TIME_STEPS = 1_000_000
 _SETTLE_TAUS = 12.0        # record length: ramp + this many RC time constants ...
 _SETTLE_DELAYS = 60.0      # ... + this many one-way delays of the whole chain
 _SETTLED = 0.01            # the record must end within this fraction of the swing
@@ -477,8 +484,19 @@ def needs_distributed(stretches: Sequence[Stretch], r_source: float, c_load: flo
     return bool(ell / (r_source * r_source * c_total) > LUMPED_INDUCTANCE_LIMIT)
 
 
+class _TooManySteps(InputError):
+    """A record longer than :data:`MAX_TIME_STEPS`; :func:`analyse_line` names the line."""
+
+
 def _grid(t_end: float, dt: float) -> np.ndarray:
-    n = int(math.ceil(t_end / dt))
+    steps = t_end / dt
+    if not steps <= MAX_TIME_STEPS:  # also NaN: checked before anything is allocated
+        raise _TooManySteps(
+            M.TOO_MANY_TIME_STEPS.format(steps=f"{steps:.3g}", limit=f"{MAX_TIME_STEPS:,}"),
+            value=f"{format_si(t_end, 's')} in steps of {format_si(dt, 's')}",
+            hint="the step divides the shortest section delay: merge a very short section "
+                 "into its neighbour (or drop it), or shorten the longest section")
+    n = int(math.ceil(steps))
     return np.arange(n + 1) * dt
 
 
@@ -518,7 +536,9 @@ def simulate_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float,
     The record runs for the ramp, 12 time constants of ``r_source`` into the whole
     capacitance and (distributed) 60 one-way delays, lengthened until it ends within
     1 % of the swing.  The step is at most 1/50 of the shortest section delay, of the
-    ramp and of the time constant, and divides the shortest delay exactly.
+    ramp and of the time constant, and divides the shortest delay exactly.  A record
+    that would need more than :data:`MAX_TIME_STEPS` steps is refused with an
+    InputError.
     """
     c_line = sum(s.c for s in stretches)
     c_total = c_line + c_far
@@ -962,7 +982,7 @@ def _figures_of(cases: dict) -> dict:
 def analyse_line(signal: str, line: Line, drivers: Sequence[Endpoint],
                  loads: Sequence[Endpoint], receivers: Sequence[Endpoint], *,
                  clock: float | None = None, clock_line: bool = False,
-                 warn_margin: float = 0.10) -> LineAnalysis:
+                 warn_margin: float = 0.10, bus_id: str | None = None) -> LineAnalysis:
     """Evaluate one routed push-pull or open-drain line.
 
     Parameters
@@ -983,18 +1003,31 @@ def analyse_line(signal: str, line: Line, drivers: Sequence[Endpoint],
         Ringing is a failure (double clocking) rather than a warning. [1]
     warn_margin : float, optional
         Relative margin under which a passing check warns. [1]
+    bus_id : str, optional
+        The bus the line belongs to, named in an error about the line. [1]
 
     Returns
     -------
     LineAnalysis
         With its ``result`` filled.
+
+    Raises
+    ------
+    InputError
+        When a waveform record of the line would need more than
+        :data:`MAX_TIME_STEPS` time steps.
     """
     res = LineResult(signal=signal)
     # Validity warnings of the trace models and of the solver become notes of the line.
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
-        a = _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line,
-                     warn_margin)
+        try:
+            a = _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line,
+                         warn_margin)
+        except _TooManySteps as exc:
+            where = f"bus.{bus_id}.lines.{signal}" if bus_id else f"lines.{signal}"
+            raise InputError(exc.problem, field=where, value=exc.value,
+                             hint=exc.hint) from None
     for w in caught:
         text = f"{signal}: {w.message}"
         if text not in res.notes:
@@ -1008,7 +1041,7 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
     a = LineAnalysis(signal, line, stretches, list(drivers), list(loads), list(receivers),
                      result=res)
     if not a.drivers:
-        raise DesignError(f"no device drives {signal}", field=f"lines.{signal}",
+        raise DesignError(M.NO_DRIVER_ON_LINE, field=f"lines.{signal}",
                           hint="a push-pull or open-drain pin must sit on the line")
     if any(not s.td > 0 for s in stretches) and stretches:
         notes.append("a section without a delay counts as a lumped capacitance at the far end")

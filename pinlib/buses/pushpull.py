@@ -23,6 +23,7 @@ GPIO line.
 
 from __future__ import annotations
 
+from pinlib import messages as M
 from pinlib.buses.pushline import Endpoint, analyse_line, device_supply
 from pinlib.buses.spi import evaluate_spi
 from pinlib.design import Bus, Design, Device
@@ -62,7 +63,7 @@ def gpio_pin(device: Device, signal: str, n_lines: int) -> tuple[str, Pin] | Non
     pins = device.part.sides[side].pins if side else device.part.pins
     if device.pin is not None and (n_lines == 1 or device.pin == signal):
         if device.pin not in pins:
-            raise DesignError("the part has no pin of that name", field="pin",
+            raise DesignError(M.NO_SUCH_PIN, field="pin",
                               value=device.pin, hint="pins: " + ", ".join(pins))
         return device.pin, pins[device.pin]
     if signal in pins:
@@ -101,13 +102,13 @@ def evaluate_gpio(bus: Bus, design: Design) -> BusResult:
         drivers = [e for e in eps if e.drives]
         receivers = [e for e in eps if e.pin.drive == "input"]
         if not drivers:
-            raise DesignError(f"no device drives the gpio line {sig}",
+            raise DesignError(M.NO_DRIVER_ON_LINE,
                               field=f"bus.{bus.id}.lines.{sig}",
                               hint="give each device's pin (pin = \"NAME\") or use parts with "
                                    "a push-pull or open-drain pin of that name")
         pp = [e for e in drivers if e.pin.drive == "push-pull"]
         la = analyse_line(sig, line, drivers, eps, receivers, clock=bus.clock,
-                          clock_line=False, warn_margin=design.warn_margin)
+                          clock_line=False, warn_margin=design.warn_margin, bus_id=bus.id)
         if len(pp) > 1:
             la.result.add(Check("contention", "warn", len(pp), 1, "", None,
                                 "two push-pull outputs on one net must never drive at once "
@@ -147,5 +148,5 @@ def evaluate_bus(bus: Bus, design: Design) -> BusResult:
         return evaluate_spi(bus, design)
     if bus.protocol == "gpio":
         return evaluate_gpio(bus, design)
-    raise InputError("the push-pull engine evaluates spi and gpio buses", field="protocol",
+    raise InputError(M.NOT_PUSH_PULL_BUS, field="protocol",
                      value=bus.protocol, expected="'spi' or 'gpio'")

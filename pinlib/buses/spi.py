@@ -77,6 +77,7 @@ from typing import NamedTuple
 
 import numpy as np
 
+from pinlib import messages as M
 from pinlib.buses.pushline import (
     EDGE_FRACTION,
     SIGNAL_FUNCTION,
@@ -197,7 +198,7 @@ def spi_mode(mode: int) -> SpiMode:
     'rise'
     """
     if isinstance(mode, bool) or mode not in SPI_MODES:
-        raise InputError("unknown SPI mode", field="spi_mode", value=mode,
+        raise InputError(M.UNKNOWN_SPI_MODE, field="spi_mode", value=mode,
                          expected="0, 1, 2 or 3")
     return SPI_MODES[mode]
 
@@ -396,7 +397,7 @@ def max_clock(a, k, f_limit=np.inf):
     k = _a(k)
     a, k = np.broadcast_arrays(a, k)
     if not np.all(a >= 0.0):
-        raise InputError("a margin's period coefficient must not be negative", field="a",
+        raise InputError(M.NEGATIVE_PERIOD_COEFFICIENT, field="a",
                          value=a, expected="a >= 0 [1]")
     slope = a > 0.0
     need = np.where(slope, k / np.where(slope, a, 1.0), np.where(k <= 0.0, 0.0, np.inf))
@@ -675,7 +676,7 @@ def _spi_lines(bus: Bus, design: Design) -> tuple[dict, Device, list, list, list
         if sig in _CONTROLLER_DRIVES:
             d = endpoint(controller, fn, bus)
             if d is None or d.pin.drive != "push-pull":
-                raise DesignError(f"the controller has no push-pull {fn} pin",
+                raise DesignError(M.CONTROLLER_LACKS_PUSH_PULL_PIN.format(function=fn),
                                   field=f"lines.{sig}", value=controller.part_id)
             drivers = [d]
             others = [e for e in (endpoint(p, fn, bus) for p in peripherals + bridges) if e]
@@ -692,7 +693,7 @@ def _spi_lines(bus: Bus, design: Design) -> tuple[dict, Device, list, list, list
                 notes.append("cipo is routed but no peripheral drives it; line not evaluated")
                 continue
         out[sig] = analyse_line(sig, line, drivers, loads, receivers, clock=bus.clock,
-                                clock_line=(sig == "sclk"), warn_margin=warn)
+                                clock_line=(sig == "sclk"), warn_margin=warn, bus_id=bus.id)
     return out, controller, peripherals, bridges, notes
 
 
@@ -789,7 +790,7 @@ _TERM_TEXT = {
 }
 
 
-def evaluate_spi(bus: Bus, design: Design) -> BusResult:
+def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = None) -> BusResult:
     """Evaluate an SPI bus: its lines and its timing budget at the design's clock.
 
     Parameters
@@ -798,6 +799,9 @@ def evaluate_spi(bus: Bus, design: Design) -> BusResult:
         An ``spi`` bus of ``design``. [1]
     design : Design
         The loaded design. [1]
+    analysis : SpiAnalysis, optional
+        ``spi_analysis(bus, design)`` when the caller already has it (a widget that
+        also draws the budget), so that the lines are not solved twice. [1]
 
     Returns
     -------
@@ -808,7 +812,7 @@ def evaluate_spi(bus: Bus, design: Design) -> BusResult:
         ``copi_setup_margin`` and ``copi_hold_margin`` (the worst over peripherals,
         available minus required time; None when not computed) [s].
     """
-    sa = spi_analysis(bus, design)
+    sa = spi_analysis(bus, design) if analysis is None else analysis
     res = BusResult(id=bus.id, protocol=bus.protocol)
     res.notes.extend(sa.notes)
     res.notes.append(f"SPI mode {sa.mode.mode} (CPOL {sa.mode.cpol}, CPHA {sa.mode.cpha}): "
@@ -850,7 +854,7 @@ def evaluate_spi(bus: Bus, design: Design) -> BusResult:
 def _scaled_line(line: Line, length: float) -> Line:
     total = line.length
     if total <= 0:
-        raise InputError("a line of zero length cannot be scaled", field=f"lines.{line.signal}")
+        raise InputError(M.ZERO_LENGTH_NOT_SCALED, field=f"lines.{line.signal}")
     k = length / total
     return replace(line, sections=tuple(replace(s, length=s.length * k) for s in line.sections))
 
@@ -918,7 +922,7 @@ def max_clock_vs_t_valid(bus: Bus, design: Design, t_valid, peripheral: str | No
     ref = peripheral or (sa.peripherals[0].ref if sa.peripherals else None)
     known = {p.ref: p for p in sa.peripherals}
     if ref not in known:
-        raise InputError("no such peripheral on the bus", field="peripheral", value=ref,
+        raise InputError(M.NO_SUCH_PERIPHERAL, field="peripheral", value=ref,
                          expected=", ".join(known) or "a peripheral")
     base = known[ref].t_valid
     a_cols, k_cols = [], []
@@ -930,7 +934,7 @@ def max_clock_vs_t_valid(bus: Bus, design: Design, t_valid, peripheral: str | No
         a_cols.append(np.full(tv.shape, t.a))
         k_cols.append(np.broadcast_to(np.asarray(k, dtype=float), tv.shape))
     if ref in known and base is None:
-        raise InputError("the peripheral records no t_valid to vary", field="t_valid",
+        raise InputError(M.NO_T_VALID_TO_VARY, field="t_valid",
                          value=ref)
     for _, e in sa.edge_terms:
         a_cols.append(np.full(tv.shape, EDGE_FRACTION))

@@ -6,6 +6,8 @@ import argparse
 import json
 import sys
 
+from pinlib import messages as M
+
 __all__ = ["add_parser", "run"]
 
 EXAMPLES = """\
@@ -60,9 +62,9 @@ def _positive(text: str) -> int:
     try:
         n = int(text)
     except ValueError:
-        raise argparse.ArgumentTypeError(f"not a whole number: {text!r}") from None
+        raise argparse.ArgumentTypeError(M.NOT_A_WHOLE_NUMBER.format(text=text)) from None
     if n < 1:
-        raise argparse.ArgumentTypeError("must be at least 1")
+        raise argparse.ArgumentTypeError(M.AT_LEAST_ONE.format(n=n))
     return n
 
 

@@ -6,6 +6,8 @@ import argparse
 import json
 import sys
 
+from pinlib import messages as M
+
 __all__ = ["add_parser", "run"]
 
 EXAMPLES = """\
@@ -73,9 +75,9 @@ def samples_type(text):
     try:
         n = int(text)
     except ValueError:
-        raise argparse.ArgumentTypeError(f"not a whole number: {text!r}") from None
+        raise argparse.ArgumentTypeError(M.NOT_A_WHOLE_NUMBER.format(text=text)) from None
     if n < 1:
-        raise argparse.ArgumentTypeError("at least 1 sample")
+        raise argparse.ArgumentTypeError(M.AT_LEAST_ONE.format(n=n))
     return n
 
 
@@ -83,9 +85,9 @@ def seed_type(text):
     try:
         n = int(text)
     except ValueError:
-        raise argparse.ArgumentTypeError(f"not a whole number: {text!r}") from None
+        raise argparse.ArgumentTypeError(M.NOT_A_WHOLE_NUMBER.format(text=text)) from None
     if n < 0:
-        raise argparse.ArgumentTypeError("a seed is 0 or more")
+        raise argparse.ArgumentTypeError(M.SEED_NEGATIVE)
     return n
 
 
@@ -98,7 +100,7 @@ def run(args) -> int:
     if getattr(args, "seed", None) is not None and getattr(args, "monte_carlo", None) is None:
         from pinlib.errors import InputError
 
-        raise InputError("a seed without a Monte Carlo run", field="--seed", value=args.seed,
+        raise InputError(M.SEED_WITHOUT_MONTE_CARLO, field="--seed", value=args.seed,
                          hint="add --monte-carlo N")
     result = check_design(design)
     threshold = DEFAULT_THRESHOLD if args.threshold is None else args.threshold

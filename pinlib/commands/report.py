@@ -12,6 +12,8 @@ import argparse
 import sys
 from pathlib import Path
 
+from pinlib import messages as M
+
 __all__ = ["add_parser", "run", "chart_dir_for", "MONTE_CARLO_MODULES"]
 
 EXAMPLES = """\
@@ -40,9 +42,9 @@ def _positive_int(text: str) -> int:
     try:
         n = int(text)
     except ValueError:
-        raise argparse.ArgumentTypeError(f"not a whole number: {text!r}") from None
+        raise argparse.ArgumentTypeError(M.NOT_A_WHOLE_NUMBER.format(text=text)) from None
     if n < 1:
-        raise argparse.ArgumentTypeError(f"at least 1 sample is needed (got {n})")
+        raise argparse.ArgumentTypeError(M.AT_LEAST_ONE.format(n=n))
     return n
 
 
@@ -109,7 +111,7 @@ def _monte_carlo(design, n: int, seed: int | None):
         if run is None:
             continue
         return run(design, n, seed=seed)
-    raise InputError("the Monte Carlo engine is not available in this pinlib",
+    raise InputError(M.MONTE_CARLO_UNAVAILABLE,
                      field="--monte-carlo", value=n,
                      hint="write the report without --monte-carlo")
 
@@ -123,14 +125,14 @@ def run(args) -> int:
     from pinlib.tomlfile import atomic_write
 
     if args.seed is not None and args.monte_carlo is None:
-        raise InputError("--seed is for a Monte Carlo run", field="--seed", value=args.seed,
+        raise InputError(M.SEED_WITHOUT_MONTE_CARLO, field="--seed", value=args.seed,
                          hint="add --monte-carlo N")
     target = Path(args.html or args.md)
     if target.is_dir():
-        raise InputError("the report target is a folder", file=str(target),
+        raise InputError(M.REPORT_TARGET_IS_FOLDER, file=str(target),
                          expected="a file name, e.g. review.html")
     if not target.parent.is_dir() and str(target.parent):
-        raise InputError("the report's folder does not exist", file=str(target),
+        raise InputError(M.REPORT_FOLDER_MISSING, file=str(target),
                          hint=f"create {target.parent} first")
     design = load_design(args.design, library_folders=args.library)
     result = check_design(design)
@@ -153,7 +155,7 @@ def run(args) -> int:
             except OSError as exc:
                 from pinlib.errors import WriteError
 
-                raise WriteError(f"cannot make the chart folder: {exc.strerror}",
+                raise WriteError(M.CANNOT_CREATE_FOLDER.format(reason=exc.strerror),
                                  file=str(target.parent / folder)) from None
         for rel, svg in files.items():
             path = target.parent / rel

@@ -26,6 +26,7 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
+from pinlib import messages as M
 from pinlib.errors import FitWarning, InputError
 from pinlib.physics import rc
 
@@ -187,13 +188,13 @@ def _array(value, name: str) -> np.ndarray:
     try:
         return np.asarray(value, dtype=float)
     except (TypeError, ValueError) as exc:
-        raise InputError("not a number or an array of numbers", field=name, value=value,
+        raise InputError(M.NOT_NUMBERS, field=name, value=value,
                          expected="a float or array of floats") from exc
 
 
 def _require(value, ok, name: str, expected: str) -> None:
     if not np.all(ok):
-        raise InputError("value out of range", field=name, value=value, expected=expected)
+        raise InputError(M.VALUE_OUT_OF_RANGE, field=name, value=value, expected=expected)
 
 
 def _non_negative(value, name: str, unit: str) -> np.ndarray:
@@ -230,7 +231,7 @@ def level_fractions(levels="10-90"):
     names = [str(s) for s in arr.flat]
     unknown = [s for s in names if s not in LEVELS]
     if unknown or not names:
-        raise InputError("unknown measuring levels", field="levels",
+        raise InputError(M.UNKNOWN_MEASURING_LEVELS, field="levels",
                          value=unknown[0] if unknown else levels,
                          expected="one of " + ", ".join(f"'{k}'" for k in LEVELS))
     lo = np.array([LEVELS[s][0] for s in names]).reshape(arr.shape)
@@ -618,17 +619,19 @@ def fit_driver(loads, times, levels="10-90", *, r_out=None, r_out_dc=None):
     loads_a = _positive(loads, "loads", "[F]").reshape(-1)
     times_a = _positive(times, "times", "[s]").reshape(-1)
     if loads_a.size == 0:
-        raise InputError("no edge points", field="loads", value=loads,
+        raise InputError(M.NO_EDGE_POINTS, field="loads", value=loads,
                          expected="at least one load and edge time")
     if times_a.size != loads_a.size:
-        raise InputError("loads and times differ in length", field="times", value=times,
+        raise InputError(M.LENGTHS_DIFFER.format(a="loads", b="times"), field="times",
+                         value=times,
                          expected=f"{loads_a.size} edge times, one per load")
     lv = np.asarray(levels, dtype=object)
     if lv.ndim == 0:
         lv = np.full(loads_a.size, str(levels), dtype=object)
     lv = lv.reshape(-1)
     if lv.size != loads_a.size:
-        raise InputError("levels and loads differ in length", field="levels", value=levels,
+        raise InputError(M.LENGTHS_DIFFER.format(a="levels", b="loads"), field="levels",
+                         value=levels,
                          expected=f"one string, or {loads_a.size}, one per load")
     lo, hi = level_fractions(lv)
     names = [str(s) for s in lv]
@@ -803,7 +806,7 @@ def driver_from_pin(pin, vdd, *, default_t_ramp=DEFAULT_T_RAMP):
     note says so when that differs from ``vdd``.
     """
     if getattr(pin, "drive", None) != "push-pull":
-        raise InputError("a driver model needs a push-pull pin", field="drive",
+        raise InputError(M.DRIVER_NEEDS_PUSH_PULL, field="drive",
                          value=getattr(pin, "drive", None), expected="'push-pull'")
     vdd_f = float(_positive(vdd, "vdd", "[V]"))
     t_default = float(_non_negative(default_t_ramp, "default_t_ramp", "[s]"))
@@ -900,7 +903,7 @@ def edge_vs_load(driver, loads, edge="rise", levels="10-90", *, r_series=0.0):
     [0.439, 4.394]
     """
     if edge not in ("rise", "fall"):
-        raise InputError("unknown edge", field="edge", value=edge,
+        raise InputError(M.UNKNOWN_EDGE, field="edge", value=edge,
                          expected="'rise' or 'fall'")
     r = driver.r_rise if edge == "rise" else driver.r_fall
     t = driver.t_ramp_rise if edge == "rise" else driver.t_ramp_fall

@@ -253,11 +253,10 @@ def _warn_outside(kind: str, method: str, q: dict[str, np.ndarray]) -> None:
         if np.any(outside):
             first = float(x[outside].flat[0]) if x.ndim else float(x)
             warnings.warn(
-                ValidityWarning(
-                    f"{kind} method '{method}': {int(np.count_nonzero(outside))} of "
-                    f"{x.size} input(s) outside {rng.describe()} (e.g. {rng.quantity} = "
-                    f"{first:.4g}); source: {rng.source}"
-                ),
+                ValidityWarning(M.OUTSIDE_VALIDITY.format(
+                    kind=kind, method=method, count=int(np.count_nonzero(outside)),
+                    size=x.size, range=rng.describe(), quantity=rng.quantity,
+                    first=f"{first:.4g}", source=rng.source)),
                 stacklevel=3,  # the caller of microstrip()/stripline()
             )
 
