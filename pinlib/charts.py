@@ -14,6 +14,7 @@ unit, e.g. ``"Bus capacitance Cb (pF)"``, with the values scaled to that unit.
 from __future__ import annotations
 
 import math
+import re
 from collections.abc import Callable, Mapping, Sequence
 from contextvars import ContextVar
 from typing import TYPE_CHECKING
@@ -107,17 +108,59 @@ _DEFERRED: ContextVar[list | None] = ContextVar("pinlib_charts_deferred", defaul
 _TOKEN = "pinlib-deferred-"
 
 
+def _slot(values: list, held: list) -> int:
+    """Index of ``values`` among the rows ``held`` (added when new)."""
+    for i, rows in enumerate(held):  # equal rows, one name: altair hoists shared data
+        if rows is values or rows == values:
+            return i
+    held.append(values)
+    return len(held) - 1
+
+
 def _data(values: list):
     """``alt.Data`` of ``values``, or a placeholder for them while :func:`spec` builds."""
     alt = _alt()
     held = _DEFERRED.get()
     if held is None:
         return alt.Data(values=values)
-    for i, rows in enumerate(held):  # equal rows, one name: altair hoists shared data
-        if rows == values:
-            return alt.Data(name=f"{_TOKEN}{i}")
-    held.append(values)
-    return alt.Data(name=f"{_TOKEN}{len(held) - 1}")
+    return alt.Data(name=f"{_TOKEN}{_slot(values, held)}")
+
+
+# Under spec(), a chart function may name its layout (everything but its rows) and the
+# rows it is about to hand to _data, in order; a layout built before is then reused from
+# here instead of building the altair objects again.
+_LAYOUTS: dict[tuple, dict] = {}
+_LAYOUTS_MAX = 32
+_PENDING: ContextVar[list | None] = ContextVar("pinlib_charts_layout", default=None)
+
+
+class _Known:
+    """A layout :func:`spec` has built before, standing in for the altair chart."""
+
+    def __init__(self, skeleton: dict):
+        self.skeleton = skeleton
+
+    def to_dict(self, validate: bool = False) -> dict:
+        return self.skeleton
+
+
+def _reuse(key: tuple, rows: Sequence[list]):
+    """The layout ``key`` already built for ``rows`` (a :class:`_Known`), or None.
+
+    Outside :func:`spec` always None.  The key of the layout includes which of ``rows``
+    are equal, as that decides the data names in it.
+    """
+    held = _DEFERRED.get()
+    pending = _PENDING.get()
+    if held is None or pending is None or held:
+        return None
+    full = (key, tuple(_slot(r, held) for r in rows))
+    known = _LAYOUTS.get(full)
+    if known is not None:
+        return _Known(known)
+    del held[:]  # the builder hands the rows to _data itself
+    pending.append((full, len(rows)))
+    return None
 
 
 def _fill(node, held: list):
@@ -456,29 +499,37 @@ def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
     y_title = _title(edge_label, uy)
 
     domain = _unique([*names, *(plabels[i] for i in np.flatnonzero(okp))])
-    colour = alt.Color("series:N", scale=_scale_pair(domain, _colours(domain, (OPERATING,))),
-                       legend=_legend("Curve"))
     kinds = (["datasheet"] if okp.any() else []) + ([op[2]] if op else [])
     shapes = (["diamond"] if okp.any() else []) + (["cross"] if op else [])
-    shape = alt.Shape("kind:N", scale=alt.Scale(domain=kinds, range=shapes),
-                      legend=_legend("Points"))
-
     rows = [{"load": _num(a * fx), "t": _num(b * fy), "series": names[k]}
             for k in range(y2.shape[0]) for a, b in zip(xs[k][ok[k]], ys[k][ok[k]])]
+    pts = [{"load": _num(a * fx), "t": _num(b * fy), "series": s, "kind": "datasheet"}
+           for a, b, s, keep in zip(px, py, plabels, okp) if keep] if okp.any() else None
+    op_rows = ([{"load": _num(op[0] * fx), "t": _num(op[1] * fy), "kind": op[2]}]
+               if op else None)
+    known = _reuse(("edge_vs_load", x_title, y_title, bool(log_x), bool(log_y),
+                    tuple(domain), tuple(kinds), tuple(shapes), title, subtitle, width,
+                    height),
+                   [rows] + ([pts] if pts is not None else [])
+                   + ([op_rows] if op_rows is not None else []))
+    if known is not None:
+        return known
+
+    colour = alt.Color("series:N", scale=_scale_pair(domain, _colours(domain, (OPERATING,))),
+                       legend=_legend("Curve"))
+    shape = alt.Shape("kind:N", scale=alt.Scale(domain=kinds, range=shapes),
+                      legend=_legend("Points"))
     layers = [alt.Chart(_data(rows)).mark_line(strokeWidth=2).encode(
         x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
         color=colour, detail="series:N")]
     tips = [alt.Tooltip("load:Q", title=x_title), alt.Tooltip("t:Q", title=y_title)]
-    if okp.any():
-        pts = [{"load": _num(a * fx), "t": _num(b * fy), "series": s, "kind": "datasheet"}
-               for a, b, s, keep in zip(px, py, plabels, okp) if keep]
+    if pts is not None:
         layers.append(alt.Chart(_data(pts)).mark_point(
             filled=True, size=90, opacity=1).encode(
             x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
             color=colour, shape=shape, tooltip=[*tips, alt.Tooltip("series:N", title="part")]))
-    if op:
-        layers.append(alt.Chart(_data([
-            {"load": _num(op[0] * fx), "t": _num(op[1] * fy), "kind": op[2]}])).mark_point(
+    if op_rows is not None:
+        layers.append(alt.Chart(_data(op_rows)).mark_point(
             filled=True, size=160, opacity=1, color=OPERATING).encode(
             x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
             shape=shape, tooltip=tips))
@@ -551,19 +602,31 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
     if set(names) & set(fixed):
         raise InputError(M.LABEL_IN_LEGEND.format(what="trace label"), field="traces",
                          value=sorted(set(names) & set(fixed)), expected="other labels")
-    colour = alt.Color("series:N",
-                       scale=_scale_pair(fixed + names,
-                                         fixed_colours + _colours(names, fixed_colours)),
-                       legend=_legend(None))
-
-    band = alt.Chart(_data([{"lo": _num(lo * fy), "hi": _num(hi * fy),
-                                       "series": band_label}])).mark_rect(
-        opacity=_BAND_OPACITY).encode(y=_q("lo", y_title, channel="y"), y2="hi:Q",
-                                      color=colour)
+    band_rows = [{"lo": _num(lo * fy), "hi": _num(hi * fy), "series": band_label}]
     levels = [{"v": _num(lo * fy), "series": threshold_label,
                "text": f"VIL {lo * fy:.3g} {uy}"},
               {"v": _num(hi * fy), "series": threshold_label,
                "text": f"VIH {hi * fy:.3g} {uy}"}]
+    vdd_rows = [{"v": _num(top * fy), "series": vdd_label}] if vdd_label else None
+    rows = []
+    for name in names:
+        a = vs[name]
+        ok = _keep(tt, a, positive=(False, False))
+        rows += [{"t": _num(p * fx), "v": _num(q * fy), "series": name}
+                 for p, q in zip(tt[ok], a[ok])]
+    known = _reuse(("waveforms", x_title, y_title, tuple(names), band_label,
+                    threshold_label, vdd_label, title, subtitle, width, height),
+                   [band_rows, levels, levels] + ([vdd_rows] if vdd_label else []) + [rows])
+    if known is not None:
+        return known
+
+    colour = alt.Color("series:N",
+                       scale=_scale_pair(fixed + names,
+                                         fixed_colours + _colours(names, fixed_colours)),
+                       legend=_legend(None))
+    band = alt.Chart(_data(band_rows)).mark_rect(
+        opacity=_BAND_OPACITY).encode(y=_q("lo", y_title, channel="y"), y2="hi:Q",
+                                      color=colour)
     rules = alt.Chart(_data(levels)).mark_rule(strokeDash=[6, 3]).encode(
         y=_q("v", y_title, channel="y"), color=colour)
     words = alt.Chart(_data(levels)).mark_text(
@@ -572,15 +635,9 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
                             text="text:N")
     layers = [band, rules, words]
     if vdd_label:
-        layers.append(alt.Chart(_data([{"v": _num(top * fy), "series": vdd_label}]))
+        layers.append(alt.Chart(_data(vdd_rows))
                       .mark_rule(strokeDash=[2, 3]).encode(
                           y=_q("v", y_title, channel="y"), color=colour))
-    rows = []
-    for name in names:
-        a = vs[name]
-        ok = _keep(tt, a, positive=(False, False))
-        rows += [{"t": _num(p * fx), "v": _num(q * fy), "series": name}
-                 for p, q in zip(tt[ok], a[ok])]
     layers.append(alt.Chart(_data(rows)).mark_line(strokeWidth=1.8).encode(
         x=_q("t", x_title), y=_q("v", y_title, channel="y"), color=colour,
         detail="series:N"))
@@ -823,12 +880,22 @@ def spec(build: Callable[..., object], *args, **kwargs) -> dict:
     from altair.utils import schemapi
 
     held: list = []
+    pending: list = []
     token = _DEFERRED.set(held)
+    token_layout = _PENDING.set(pending)
     try:
         with schemapi.debug_mode(False):
-            skeleton = build(*args, **kwargs).to_dict(validate=False)
+            chart = build(*args, **kwargs)
+            skeleton = chart.to_dict(validate=False)
     finally:
         _DEFERRED.reset(token)
+        _PENDING.reset(token_layout)
+    if len(pending) == 1 and not isinstance(chart, _Known):
+        key, count = pending[0]
+        if len(held) == len(set(key[1])) and count == len(key[1]):
+            if len(_LAYOUTS) >= _LAYOUTS_MAX:
+                _LAYOUTS.pop(next(iter(_LAYOUTS)))
+            _LAYOUTS[key] = skeleton
     return _fill(skeleton, held)
 
 
@@ -842,7 +909,69 @@ def _vl_version() -> str | None:
     return wanted if wanted in known else None
 
 
-def to_svg(chart) -> str:
+# Compiled Vega of each chart layout (its spec with the data rows taken out), so that a
+# redraw with new rows only renders: the Vega-Lite compile reads the spec, not the rows.
+_COMPILED: dict[str, tuple[str, list[str]] | None] = {}
+_COMPILED_MAX = 32
+_SLOT = "pinlib-slot"
+
+
+def _slots(node, rows: list):
+    """``node`` with each inline ``values`` list replaced by a one-row marker of its slot.
+
+    Equal lists share a slot, as they share a data source once compiled.
+    """
+    if isinstance(node, dict):
+        out = {}
+        for k, v in node.items():
+            if k == "values" and isinstance(v, list):
+                out[k] = [{_SLOT: _slot(v, rows)}]
+            elif k == "datasets" and isinstance(v, dict):
+                out[k] = {name: _slots({"values": d}, rows)["values"]
+                          if isinstance(d, list) else _slots(d, rows)
+                          for name, d in v.items()}
+            else:
+                out[k] = _slots(v, rows)
+        return out
+    if isinstance(node, list):
+        return [_slots(v, rows) for v in node]
+    return node
+
+
+def _compiled(layout: dict, slots: int, version: str | None) -> tuple[str, list[str]] | None:
+    """The Vega JSON of ``layout`` split at its slot markers, or None when a marker is not
+    found exactly once (the caller then renders the whole spec)."""
+    import json
+
+    import vl_convert
+
+    text = json.dumps(layout, sort_keys=True, ensure_ascii=False)
+    key = f"{version}|{text}"
+    if key in _COMPILED:
+        return _COMPILED[key]
+    if version is None:
+        vega = vl_convert.vegalite_to_vega(text)
+    else:
+        vega = vl_convert.vegalite_to_vega(text, vl_version=version)
+    vega_text = json.dumps(vega, ensure_ascii=False)
+    markers = [json.dumps([{_SLOT: i}], ensure_ascii=False) for i in range(slots)]
+    pattern = "|".join(re.escape(m) for m in markers)
+    found = re.findall(pattern, vega_text) if markers else []
+    split = None
+    if not slots:
+        split = (vega_text, [])
+    elif len(found) == slots and len(set(found)) == slots and _SLOT not in re.sub(
+            pattern, "", vega_text):
+        pieces = re.split(f"({pattern})", vega_text)
+        split = (pieces[0], [pieces[j] for j in range(1, len(pieces), 2)]
+                 + pieces[2::2])  # markers in order, then the text after each
+    if len(_COMPILED) >= _COMPILED_MAX:
+        _COMPILED.pop(next(iter(_COMPILED)))
+    _COMPILED[key] = split
+    return split
+
+
+def to_svg(chart, *, cache: bool = True) -> str:
     """Render a chart to SVG text with vl-convert (no browser, no network).
 
     Parameters
@@ -850,6 +979,9 @@ def to_svg(chart) -> str:
     chart : altair chart, dict or str
         A chart from this module (or any altair chart), a Vega-Lite spec as a dict, or
         its JSON text. [1]
+    cache : bool, optional
+        For a dict: compile each layout (the spec without its data rows) to Vega once
+        and then only swap the rows in; the SVG is the same as without. [1]
 
     Returns
     -------
@@ -860,13 +992,26 @@ def to_svg(chart) -> str:
 
     import vl_convert
 
+    version = _vl_version()
+    if cache and isinstance(chart, Mapping):
+        rows: list = []
+        layout = _slots(chart, rows)
+        split = _compiled(layout, len(rows), version)
+        if split is not None:
+            head, rest = split
+            n = len(rows)
+            order, tails = rest[:n], rest[n:]
+            parts = [head]
+            for marker, tail in zip(order, tails, strict=True):
+                i = json.loads(marker)[0][_SLOT]
+                parts += [json.dumps(rows[i], sort_keys=True, ensure_ascii=False), tail]
+            return vl_convert.vega_to_svg("".join(parts))
     if isinstance(chart, str):
         spec = chart
     elif isinstance(chart, Mapping):
         spec = json.dumps(chart, sort_keys=True, ensure_ascii=False)
     else:
         spec = chart.to_json()
-    version = _vl_version()
     if version is None:
         return vl_convert.vegalite_to_svg(spec)
     return vl_convert.vegalite_to_svg(spec, vl_version=version)

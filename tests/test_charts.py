@@ -413,3 +413,64 @@ def test_chart_libraries_stay_out_of_the_command_line_import_path():
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                           cwd=Path(__file__).resolve().parents[1], timeout=120)
     assert done.returncode == 0, done.stderr
+
+
+@pytest.mark.parametrize("name", sorted(ALL))
+def test_cached_compile_gives_the_same_svg(name, monkeypatch):
+    # derived from vl-convert's own vegalite_to_svg of the whole spec: swapping the rows
+    # into a cached compile must give the same bytes, for fresh and for cached layouts
+    import vl_convert
+
+    spec = charts.spec(ALL[name])
+    direct = charts.to_svg(spec, cache=False)
+    assert charts.to_svg(spec) == direct  # compiles the layout
+    with monkeypatch.context() as m:  # now only the cached compile may be used
+        m.setattr(vl_convert, "vegalite_to_svg", None)
+        m.setattr(vl_convert, "vegalite_to_vega", None)
+        assert charts.to_svg(spec).encode() == direct.encode()
+
+
+def test_fast_spec_reuses_a_layout_only_where_it_is_the_same():
+    # derived from altair's own Chart.to_dict(): a redraw that reuses the layout built
+    # for earlier arguments must still give the dict altair builds for these arguments
+    t = np.linspace(0.0, 20.0, 201) * NANO
+    cases = [
+        (t, {"a": 3.3 * (1 - np.exp(-t / (2 * NANO)))}, dict(v_il=0.99, v_ih=2.31, vdd=3.3)),
+        (t, {"a": 3.3 * (1 - np.exp(-t / (3 * NANO)))}, dict(v_il=0.99, v_ih=2.31, vdd=3.3)),
+        (t, {"a": 3.0 * (1 - np.exp(-t / (3 * NANO)))}, dict(v_il=0.8, v_ih=2.0, vdd=3.0)),
+        (t * 1e3, {"a": 3.0 * (1 - np.exp(-t / (3 * NANO)))}, dict(v_il=0.8, v_ih=2.0)),
+        (t, {"b": 1.8 * (1 - np.exp(-t / NANO)), "c": 1.8 * (1 - np.exp(-t / (2 * NANO)))},
+         dict(v_il=0.63, v_ih=1.17, vdd=1.8, title="other")),
+        (t, {"a": 3.3 * (1 - np.exp(-t / (2 * NANO)))}, dict(v_il=0.99, v_ih=2.31, vdd=3.3)),
+    ]
+    for _ in range(2):
+        for tt, traces, kw in cases:
+            assert (charts.spec(charts.waveforms, tt, traces, **kw)
+                    == charts.waveforms(tt, traces, **kw).to_dict(validate=False))
+    loads = np.array([0, 10, 20, 30, 40, 50]) * PICO
+    times = np.array([[0.5, 1.4, 2.3, 3.2, 4.1, 5.0],
+                      [0.4, 1.1, 1.8, 2.5, 3.2, 3.9]]) * NANO
+    points = (np.array([15, 30]) * PICO, np.array([2.0, 2.6]) * NANO, ["U1 rise", "U1 fall"])
+    edge_cases = [
+        dict(points=points, operating=(22 * PICO, 2.5 * NANO)),
+        dict(points=points, operating=(24 * PICO, 2.7 * NANO, "far end")),
+        dict(points=points, operating=(24 * PICO, 2.7 * NANO, "far end")),
+        dict(operating=(24 * PICO, 2.7 * NANO, "far end")),
+        dict(points=points),
+        dict(points=points, operating=(240 * PICO, 27 * NANO, "far end")),
+        dict(points=points, operating=(22 * PICO, 2.5 * NANO)),
+    ]
+    for _ in range(2):
+        for kw in edge_cases:
+            args = (loads, times)
+            kw = dict(kw, series=["U1 rise", "U1 fall"])
+            assert (charts.spec(charts.edge_vs_load, *args, **kw)
+                    == charts.edge_vs_load(*args, **kw).to_dict(validate=False))
+
+
+def test_cached_compile_of_a_chart_without_data_rows():
+    # derived from vl-convert's own vegalite_to_svg of the whole spec
+    spec = {"mark": "rule", "encoding": {"y": {"datum": 1, "type": "quantitative"}}}
+    direct = charts.to_svg(spec, cache=False)
+    assert charts.to_svg(spec) == direct
+    assert charts.to_svg(spec) == direct

@@ -284,6 +284,20 @@ def line(library):
                         receivers=[("display-controller-spi", "sclk")], length=0.28)
 
 
+def test_line_svg_is_the_uncached_render(line):
+    # derived from vl-convert's vegalite_to_svg of each whole spec: the widget's redraws,
+    # which reuse the compiled layout, must give the same SVG as a render from scratch
+    from pinlib.widgets import _inline_svg
+
+    for length in (0.28, 0.30, 0.9, 0.28):
+        line.set(series="auto", length=length)
+        assert line.error is None
+        for panel in (line.edges, line.waves):
+            direct = charts.to_svg(panel.spec, cache=False)
+            assert charts.to_svg(panel.spec) == direct
+            assert panel.svg == _inline_svg(direct, panel.key)
+
+
 def test_line_figures_are_the_engines_for_its_design(line, library):
     line.set(series="auto", length=0.28)
     assert line.error is None
