@@ -15,7 +15,7 @@ The result is a tree of plain dataclasses (:class:`Design` > :class:`Bus` >
 from __future__ import annotations
 
 import os
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Annotated, Literal
 
@@ -418,13 +418,9 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
         if g.kind == "stripline" and g.height is None and g.spacing is None:
             raise err(M.STRIPLINE_NEEDS_SPACING, loc + ("spacing",))
 
-    used_refs: dict[str, tuple] = {}
     swapped: set[str] = set()
 
     def device(d: RawDevice, loc) -> Device:
-        if d.ref in used_refs and used_refs[d.ref][:2] != loc[:2]:
-            pass  # the same part may sit on several buses (a controller); allowed
-        used_refs.setdefault(d.ref, loc)
         part_id = swaps.get(d.ref, d.part)
         if d.ref in swaps:
             swapped.add(d.ref)
@@ -652,7 +648,3 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err) -> Bus:
     return Bus(rb.id, rb.protocol, None, rb.clock, rb.supply, rb.supply_tolerance or 0.0, (),
                devices, lines, rb.spi_mode, rb.title, rb.capacitance_tolerance or 0.0,
                rb.length_tolerance or 0.0, bloc)
-
-
-def replace_device(dev: Device, **changes) -> Device:
-    return replace(dev, **changes)

@@ -302,16 +302,10 @@ def _walk(obj, path=()):
 _HEADER_FIELDS = {"format", "id", "title", "category", "extends", "abstract", "description"}
 
 
-def _dotted(path) -> str:
-    out = ""
-    for p in path:
-        out += f"[{p}]" if isinstance(p, int) else (f".{p}" if out else str(p))
-    return out
-
-
 def _show_data(lib, pid) -> dict:
     from pinlib.library.values import Sourced
     from pinlib.quantity import Threshold
+    from pinlib.tomlfile import dotted
 
     part = lib.get(pid)
     values, attributes = [], []
@@ -319,7 +313,7 @@ def _show_data(lib, pid) -> dict:
         if path and path[0] in _HEADER_FIELDS | {"provenance"}:
             continue
         if not isinstance(item, Sourced):
-            attributes.append({"field": _dotted(path), "value": item})
+            attributes.append({"field": dotted(path), "value": item})
             continue
         origin = item.origin or pid
         own_basis = item.basis
@@ -329,7 +323,7 @@ def _show_data(lib, pid) -> dict:
             part_basis = (prov or {}).get("basis") if isinstance(prov, dict) else None
             part_basis = part_basis or part.provenance.basis
         entry = {
-            "field": _dotted(path),
+            "field": dotted(path),
             "text": item.text or str(item.value),
             "unit": item.unit,
             "basis": own_basis or part_basis,

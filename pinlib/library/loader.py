@@ -325,7 +325,7 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
     lib.files = found
     for pid in found:
         try:
-            lib.parts[pid] = _resolve(pid, found, {})
+            lib.parts[pid] = _resolve(pid, found)
         except _Many as many:
             if strict:
                 raise many.errors[0] from None
@@ -337,7 +337,7 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
     return lib
 
 
-def _resolve(pid: str, files: dict[str, PartFile], cache: dict) -> Part:
+def _resolve(pid: str, files: dict[str, PartFile]) -> Part:
     merged, origin, used = _merged_raw(pid, files, [])
     return validate_part(merged, origin, {k: files[k] for k in used})
 
@@ -345,7 +345,6 @@ def _resolve(pid: str, files: dict[str, PartFile], cache: dict) -> Part:
 def _merged_raw(pid: str, files: dict[str, PartFile], stack: list[str]):
     pf = files[pid]
     parent = pf.raw.get("extends")
-    own_origin = {(k,): pid for k in pf.raw}
     if parent is None:
         merged, origin = _merge({}, pf.raw, {}, pid)
         return merged, origin, [pid]
@@ -365,5 +364,4 @@ def _merged_raw(pid: str, files: dict[str, PartFile], stack: list[str]):
                            hint=("closest: " + ", ".join(near)) if near else None)
     base, base_origin, used = _merged_raw(parent, files, stack + [pid])
     merged, origin = _merge(base, pf.raw, base_origin, pid)
-    del own_origin
     return merged, origin, used + [pid]

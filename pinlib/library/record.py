@@ -160,7 +160,7 @@ def _validate(library: loader.Library, part_id: str, path: Path, text: str,
     files = dict(library.files)
     files[part_id] = loader.PartFile(Path(path), raw, text, False)
     try:
-        part = loader._resolve(part_id, files, {})
+        part = loader._resolve(part_id, files)
     except loader._Many as many:
         errors = many.errors
         mine = [e for e in errors if field and e.field == field] or errors
@@ -174,7 +174,7 @@ def _validate(library: loader.Library, part_id: str, path: Path, text: str,
         if part_id not in _ancestors(child_id, files):
             continue
         try:
-            loader._resolve(child_id, files, {})
+            loader._resolve(child_id, files)
         except (loader._Many, LibraryError) as exc:
             first = exc.errors[0] if isinstance(exc, loader._Many) else exc
             raise LibraryError(M.WOULD_BREAK_CHILD.format(child=child_id),

@@ -21,6 +21,7 @@ import numpy as np
 
 from pinlib import messages as M
 from pinlib.errors import InputError
+from pinlib.standards.lookup import by_name
 
 __all__ = [
     "SOURCE_IO",
@@ -477,15 +478,7 @@ def i2c_mode(name: str) -> I2cMode:
     >>> i2c_mode("Fast").f_scl_max
     400000.0
     """
-    key = name.strip().lower() if isinstance(name, str) else None
-    if key not in I2C_MODES:
-        raise InputError(
-            M.UNKNOWN_I2C_MODE,
-            field="mode",
-            value=name,
-            expected="one of " + ", ".join(I2C_MODE_NAMES),
-        )
-    return I2C_MODES[key]
+    return by_name(I2C_MODES, I2C_MODE_NAMES, name, M.UNKNOWN_I2C_MODE, "mode")
 
 
 def sink_spec(mode, vdd):

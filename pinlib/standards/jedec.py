@@ -21,6 +21,7 @@ import numpy as np
 
 from pinlib import messages as M
 from pinlib.errors import InputError
+from pinlib.standards.lookup import by_name
 
 __all__ = [
     "Level",
@@ -308,12 +309,4 @@ def logic_levels(name: str) -> LogicLevels:
     >>> str(logic_levels("LVCMOS18").v_ih_min)
     '0.65·VDD'
     """
-    key = name.strip().lower() if isinstance(name, str) else None
-    if key not in LOGIC_LEVELS:
-        raise InputError(
-            M.UNKNOWN_LOGIC_LEVELS,
-            field="levels",
-            value=name,
-            expected="one of " + ", ".join(LOGIC_LEVEL_NAMES),
-        )
-    return LOGIC_LEVELS[key]
+    return by_name(LOGIC_LEVELS, LOGIC_LEVEL_NAMES, name, M.UNKNOWN_LOGIC_LEVELS, "levels")

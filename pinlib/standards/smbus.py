@@ -24,6 +24,7 @@ import numpy as np
 
 from pinlib import messages as M
 from pinlib.errors import InputError
+from pinlib.standards.lookup import by_name
 
 __all__ = [
     "SOURCE_AC",
@@ -369,15 +370,7 @@ def smbus_class(name: str) -> SmbusClass:
     >>> smbus_class("1M").i_ol
     0.02
     """
-    key = name.strip().lower() if isinstance(name, str) else None
-    if key not in SMBUS_CLASSES:
-        raise InputError(
-            M.UNKNOWN_SMBUS_CLASS,
-            field="mode",
-            value=name,
-            expected="one of " + ", ".join(SMBUS_CLASS_NAMES),
-        )
-    return SMBUS_CLASSES[key]
+    return by_name(SMBUS_CLASSES, SMBUS_CLASS_NAMES, name, M.UNKNOWN_SMBUS_CLASS, "mode")
 
 
 def _levels(cls) -> SmbusClass | SmbusLowPower:
