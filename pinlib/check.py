@@ -13,7 +13,7 @@ import os
 from pinlib.design import Bus, Design, load_design
 from pinlib.result import BusResult, DesignResult
 
-__all__ = ["ENGINES", "check_design", "check_file", "evaluate_bus"]
+__all__ = ["ENGINES", "check_design", "check_file", "design_result", "evaluate_bus"]
 
 #: The engine module of each protocol; each has ``evaluate_bus(bus, design) -> BusResult``.
 ENGINES = {
@@ -43,12 +43,15 @@ def check_design(design: Design) -> DesignResult:
     DesignResult
         One :class:`~pinlib.result.BusResult` per bus, in file order.
     """
-    result = DesignResult(design=design.title,
-                          path=str(design.path) if design.path else None,
-                          warn_margin=design.warn_margin)
-    for bus in design.buses:
-        result.buses.append(evaluate_bus(bus, design))
-    return result
+    return design_result(design, [evaluate_bus(bus, design) for bus in design.buses])
+
+
+def design_result(design: Design, buses: list) -> DesignResult:
+    """The result of ``design`` holding bus results evaluated by the caller (a widget
+    that solved a bus's lines once for its checks and its charts)."""
+    return DesignResult(design=design.title,
+                        path=str(design.path) if design.path else None,
+                        warn_margin=design.warn_margin, buses=list(buses))
 
 
 def check_file(path: str | os.PathLike, library_folders=()) -> DesignResult:

@@ -241,29 +241,6 @@ def _require_protocol(bus: Bus, allowed: tuple[str, ...], what: str) -> None:
                          expected=" or ".join(allowed))
 
 
-def _gpio_analyses(bus: Bus, design: Design) -> dict:
-    """The line engine's analysis of each GPIO line, built as the GPIO engine builds it
-    (:func:`pinlib.buses.pushpull.evaluate_gpio`)."""
-    from pinlib.buses.pushline import Endpoint, analyse_line, device_supply
-    from pinlib.buses.pushpull import gpio_pin
-
-    out = {}
-    for sig, line in bus.lines.items():
-        eps = []
-        for d in bus.devices:
-            got = gpio_pin(d, sig, len(bus.lines))
-            if got is not None:
-                eps.append(Endpoint(d, got[0], got[1], device_supply(d, bus)))
-        drivers = [e for e in eps if e.drives]
-        receivers = [e for e in eps if e.pin.drive == "input"]
-        if not drivers:
-            continue  # the engine refuses such a design; nothing to draw
-        out[sig] = analyse_line(sig, line, drivers, eps, receivers, clock=bus.clock,
-                                clock_line=False, warn_margin=design.warn_margin,
-                                bus_id=bus.id)
-    return out
-
-
 def line_analyses(bus: Bus, design: Design, analysis=None) -> dict:
     """The line engine's analysis of every routed line of a push-pull bus.
 
@@ -290,7 +267,9 @@ def line_analyses(bus: Bus, design: Design, analysis=None) -> dict:
         from pinlib.buses.spi import spi_analysis
 
         return dict(spi_analysis(bus, design).lines)
-    return _gpio_analyses(bus, design)
+    from pinlib.buses.pushpull import gpio_analyses
+
+    return gpio_analyses(bus, design)
 
 
 def _line(bus: Bus, design: Design, signal: str, analysis):

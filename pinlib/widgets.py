@@ -54,7 +54,8 @@ import tomlkit
 
 from pinlib import charts, plotdata
 from pinlib import messages as M
-from pinlib.check import check_design
+from pinlib.buses.pushpull import evaluate_gpio, gpio_analyses
+from pinlib.check import check_design, design_result
 from pinlib.design import FORMAT as DESIGN_FORMAT
 from pinlib.design import MODES, Design, design_from_text, load_design
 from pinlib.errors import InputError, LibraryError, PinlibError
@@ -1237,9 +1238,9 @@ class LineExplorer(_Panel):
         try:
             text = self.design_text()
             design = _load(text, self.library)
-            result = check_design(design)
             bus = design.buses[0]
-            solved = plotdata.line_analyses(bus, design)
+            solved = gpio_analyses(bus, design)  # the line solved once, for checks and charts
+            result = design_result(design, [evaluate_gpio(bus, design, analysis=solved)])
             edge = plotdata.edge_vs_load_data(bus, design, self.signal, analysis=solved)
             wave = plotdata.waveform_data(bus, design, self.signal, analysis=solved,
                                           points=self.wave_points)

@@ -23,6 +23,8 @@ GPIO line.
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from pinlib import messages as M
 from pinlib.buses.pushline import Endpoint, analyse_line, device_supply
 from pinlib.buses.spi import evaluate_spi
@@ -75,8 +77,8 @@ def gpio_pin(device: Device, signal: str, n_lines: int) -> tuple[str, Pin] | Non
     return None
 
 
-def evaluate_gpio(bus: Bus, design: Design) -> BusResult:
-    """Evaluate every line of a GPIO bus.
+def gpio_analyses(bus: Bus, design: Design) -> dict:
+    """The line engine's analysis of every routed line of a GPIO bus.
 
     Parameters
     ----------
@@ -87,12 +89,16 @@ def evaluate_gpio(bus: Bus, design: Design) -> BusResult:
 
     Returns
     -------
-    BusResult
-        One line result per routed line (see the module notes).
+    dict of str to LineAnalysis
+        By signal, with the drive cases (waveforms) and the models of every driver; the
+        line results carry no contention check yet (:func:`evaluate_gpio` adds it).
+
+    Raises
+    ------
+    DesignError
+        A routed line no device drives.
     """
-    res = BusResult(id=bus.id, protocol=bus.protocol)
-    if not bus.lines:
-        res.notes.append("no routed lines")
+    out = {}
     for sig, line in bus.lines.items():
         eps = []
         for d in bus.devices:
@@ -106,16 +112,44 @@ def evaluate_gpio(bus: Bus, design: Design) -> BusResult:
                               field=f"bus.{bus.id}.lines.{sig}",
                               hint="give each device's pin (pin = \"NAME\") or use parts with "
                                    "a push-pull or open-drain pin of that name")
-        pp = [e for e in drivers if e.pin.drive == "push-pull"]
-        la = analyse_line(sig, line, drivers, eps, receivers, clock=bus.clock,
-                          clock_line=False, warn_margin=design.warn_margin, bus_id=bus.id)
+        out[sig] = analyse_line(sig, line, drivers, eps, receivers, clock=bus.clock,
+                                clock_line=False, warn_margin=design.warn_margin,
+                                bus_id=bus.id)
+    return out
+
+
+def evaluate_gpio(bus: Bus, design: Design, *, analysis: dict | None = None) -> BusResult:
+    """Evaluate every line of a GPIO bus.
+
+    Parameters
+    ----------
+    bus : Bus
+        A ``gpio`` bus of ``design``. [1]
+    design : Design
+        The loaded design. [1]
+    analysis : dict, optional
+        ``gpio_analyses(bus, design)`` when the caller already has it (a widget that
+        also draws the waveforms); it is not changed. [1]
+
+    Returns
+    -------
+    BusResult
+        One line result per routed line (see the module notes).
+    """
+    solved = gpio_analyses(bus, design) if analysis is None else analysis
+    res = BusResult(id=bus.id, protocol=bus.protocol)
+    if not bus.lines:
+        res.notes.append("no routed lines")
+    for sig, la in solved.items():
+        result = replace(la.result, checks=list(la.result.checks))
+        pp = [e for e in la.drivers if e.pin.drive == "push-pull"]
         if len(pp) > 1:
-            la.result.add(Check("contention", "warn", len(pp), 1, "", None,
-                                "two push-pull outputs on one net must never drive at once "
-                                "(common practice)",
-                                f"{len(pp)} push-pull drivers on {sig}: "
-                                + ", ".join(e.label for e in pp)))
-        res.lines.append(la.result)
+            result.add(Check("contention", "warn", len(pp), 1, "", None,
+                             "two push-pull outputs on one net must never drive at once "
+                             "(common practice)",
+                             f"{len(pp)} push-pull drivers on {sig}: "
+                             + ", ".join(e.label for e in pp)))
+        res.lines.append(result)
     return res
 
 
