@@ -6,7 +6,7 @@ and gets an SI float back, or a :class:`~pinlib.errors.UnitError` that names the
 field, the value and the expected unit.  We parse ourselves rather than hand text to a
 general quantity parser because the general parsers accept too much for a file
 format: ``33R`` as 33 ronna-something, ``4k7`` as 4 with unit ``k7``, ``10 pH`` for a
-capacitance.  Formatting uses quantiphy, which renders SI prefixes well.
+capacitance.  Formatting writes SI prefixes (checked against quantiphy in the tests).
 
 Accepted forms
 --------------
@@ -358,31 +358,31 @@ def format_si(value, unit: str, digits: int = 3) -> str:
     return _rendered(value, unit, digits)
 
 
-# The engines format the same limits and thresholds for every bus they check, and a
-# quantiphy render is most of the time of checking a large design: keep recent ones.
+#: SI prefixes written by format_si, by engineering exponent (micro as the micro sign).
+_SHOWN_PREFIX = {-18: "a", -15: "f", -12: "p", -9: "n", -6: "\u00b5", -3: "m", 0: "",
+           3: "k", 6: "M", 9: "G", 12: "T"}
+
+
+# The engines format the same limits and thresholds for every bus they check: keep
+# recent ones.
 @functools.lru_cache(maxsize=4096)
 def _rendered(value: float, unit: str, digits: int) -> str:
-    q = _shown_quantity()(value, unit)
-    text = q.render(prec=digits - 1, strip_zeros=True)
-    # quantiphy puts no space between number and a bare unit with a prefix ("2.2kΩ"): add one.
-    m = re.match(rf"^({_NUMBER})\s*(.*)$", text)
-    if m:
-        return f"{m.group(1)} {m.group(2)}".strip()
-    return text
-
-
-@functools.lru_cache(maxsize=1)
-def _shown_quantity():
-    """A quantiphy Quantity class that writes micro as µ (``render`` takes no ``map_sf``;
-    it is a class preference, set here on a subclass so other users of quantiphy are
-    not affected)."""
-    from quantiphy import Quantity
-
-    class _Shown(Quantity):
-        pass
-
-    _Shown.set_prefs(map_sf=Quantity.map_sf_to_greek)
-    return _Shown
+    """``value`` rounded to ``digits`` significant digits in engineering form: a prefix
+    from ``_SHOWN_PREFIX`` when its exponent has one, else ``e<exponent>`` (a multiple of 3);
+    trailing zeros after the decimal point dropped.  (tests/test_quantity.py holds it
+    to quantiphy's rendering over a sweep of magnitudes.)"""
+    sign = "-" if value < 0 else ""
+    mantissa, exponent = f"{abs(value):.{max(digits, 1) - 1}e}".split("e")
+    exp10 = int(exponent)
+    eng = 3 * (exp10 // 3)
+    figures = mantissa.replace(".", "")
+    point = 1 + exp10 - eng  # digits before the decimal point: 1, 2 or 3
+    figures = figures.ljust(point, "0")
+    whole, frac = figures[:point], figures[point:].rstrip("0")
+    number = sign + whole + ("." + frac if frac else "")
+    if eng in _SHOWN_PREFIX:
+        return f"{number} {_SHOWN_PREFIX[eng]}{unit}".strip()
+    return f"{number}e{eng} {unit}".strip()
 
 
 def _per_length(value: float, unit: str, digits: int) -> str:

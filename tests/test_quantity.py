@@ -242,3 +242,38 @@ def test_fuzz_parse_threshold(text):
 def test_both_ohm_characters_are_accepted():
     # published: Unicode 15, U+2126 OHM SIGN is canonically equivalent to U+03A9 (Omega)
     assert parse("4.7 k\u2126", "Ω") == parse("4.7 k\u03a9", "Ω") == 4700.0
+
+
+def _quantiphy_text(value: float, unit: str, digits: int) -> str:
+    """quantiphy's rendering with the options format_si follows: micro as the micro
+    sign, trailing zeros stripped, a space between the number and the unit."""
+    import re
+
+    quantiphy = pytest.importorskip("quantiphy")
+
+    class Shown(quantiphy.Quantity):
+        pass
+
+    Shown.set_prefs(map_sf=quantiphy.Quantity.map_sf_to_greek)
+    text = Shown(value, unit).render(prec=digits - 1, strip_zeros=True)
+    m = re.match(r"^([+-]?[\d.]+(?:e[+-]?\d+)?)\s*(.*)$", text)
+    return f"{m.group(1)} {m.group(2)}".strip()
+
+
+@settings(max_examples=400, deadline=None)
+@given(mantissa=st.floats(1.0, 10.0, exclude_max=True), exponent=st.integers(-40, 40),
+       negative=st.booleans(), unit=st.sampled_from(["F", "Ω", "s", "", "Hz", "V"]),
+       digits=st.integers(1, 6))
+def test_format_si_agrees_with_quantiphy(mantissa, exponent, negative, unit, digits):
+    # quantiphy (PyPI) is the reference for SI-prefixed engineering notation: prefixes
+    # from atto to tera, engineering exponents outside them.
+    value = (-1.0 if negative else 1.0) * mantissa * 10.0 ** exponent
+    assert format_si(value, unit, digits) == _quantiphy_text(value, unit, digits)
+
+
+@pytest.mark.parametrize("value", [999.5, 999.96e12, 9.9996e-19, 1e-100, 5e-324,
+                                   1.7976931348623157e308, 0.0015, 1234.0])
+@pytest.mark.parametrize("digits", [1, 2, 3, 5])
+def test_format_si_rounding_edges_agree_with_quantiphy(value, digits):
+    # values that round up into the next prefix, and the ends of the float range
+    assert format_si(value, "F", digits) == _quantiphy_text(value, "F", digits)

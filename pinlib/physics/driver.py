@@ -92,6 +92,11 @@ _MAX_ITER = 300
 _STEP_TOL = 1e-13
 _COST_RTOL = 1e-15
 _FD_STEP = 1e-7
+#: Damping values tried per Levenberg-Marquardt iteration, each this factor above the last.
+_TRIALS = 40
+_LAM_GROWTH = 4.0
+#: The trials in the order they are evaluated: most iterations take the first or second.
+_TRIAL_CHUNKS = ((0, 2), (2, _TRIALS))
 
 # Fits already made in this process, by their inputs.  The SPI engine fits the same
 # datasheet points once per routed line and edge; the fit is deterministic, so a repeat
@@ -345,68 +350,125 @@ def r_out_from_levels(vdd, v_oh, i_oh, v_ol, i_ol):
 
 
 def _lm(fun, x0, lower, upper, free):
-    """Bounded Levenberg-Marquardt on a small least-squares problem.
+    """Bounded Levenberg-Marquardt on a small least-squares problem, from several starts.
 
-    ``fun(x)`` returns the residual vector; parameters outside ``free`` stay at ``x0``.
-    A parameter sitting on a bound whose gradient points out of the box is held there
-    for the step (a projected active-set step); steps are clipped into the box.
+    ``x0`` holds one start per row; every start runs its own iteration (its own damping,
+    its own end), all of them advanced together so that each residual evaluation covers
+    every start still running.  ``fun(X)`` returns one residual row per row of ``X``;
+    parameters outside ``free`` stay at their start.  A parameter sitting on a bound
+    whose gradient points out of the box is held there for the step (a projected
+    active-set step); steps are clipped into the box.  Returns ``(x, residuals, cost)``
+    per start, in the order of the starts.
     """
-    x = np.clip(np.array(x0, dtype=float), lower, upper)
-    r = fun(x)
-    cost = float(r @ r)
-    lam = 1e-3
+    x = np.clip(np.array(x0, dtype=float, ndmin=2), lower, upper)
+    r = np.array(fun(x), dtype=float)
+    cost = np.einsum("ij,ij->i", r, r)
+    lam = np.full(x.shape[0], 1e-3)
+    running = np.ones(x.shape[0], dtype=bool)
+    p = x.shape[1]
+    eye = np.eye(p)
     for _ in range(_MAX_ITER):
-        jac = _jacobian(fun, x, lower, upper, free)
-        grad = jac.T @ r
-        held = ((x <= lower) & (grad > 0.0)) | ((x >= upper) & (grad < 0.0))
+        idx = np.flatnonzero(running)
+        if not idx.size:
+            break
+        xr = x[idx]
+        jac = _jacobian(fun, xr, lower, upper, free)  # (starts, residuals, parameters)
+        grad = np.einsum("kmp,km->kp", jac, r[idx])
+        held = ((xr <= lower) & (grad > 0.0)) | ((xr >= upper) & (grad < 0.0))
         active = free & ~held
-        if not np.any(active):
+        stuck = ~active.any(axis=1)
+        running[idx[stuck]] = False
+        keep = ~stuck
+        idx, xr, jac, grad, active = idx[keep], xr[keep], jac[keep], grad[keep], active[keep]
+        if not idx.size:
             break
-        ja = jac[:, active]
-        a = ja.T @ ja
-        ga = grad[active]
-        diag = np.diag(a).copy()
-        diag = np.maximum(diag, 1e-12 * max(float(diag.max()), 1e-300))
-        accepted = False
-        for _ in range(40):
-            step = np.linalg.lstsq(a + lam * np.diag(diag), -ga, rcond=None)[0]
-            x_new = x.copy()
-            x_new[active] = x_new[active] + step
-            x_new = np.clip(x_new, lower, upper)
-            r_new = fun(x_new)
-            cost_new = float(r_new @ r_new)
-            if cost_new <= cost:
-                accepted = True
+        # The normal equations on the active parameters; a held parameter gets an
+        # identity row and a zero right-hand side, so its step is 0.
+        both = active[:, :, None] & active[:, None, :]
+        a = np.where(both, np.einsum("kmp,kmq->kpq", jac, jac), 0.0)
+        diag = np.where(active, np.einsum("kpp->kp", a), 0.0)
+        floor = 1e-12 * np.maximum(np.max(np.where(active, diag, -np.inf), axis=1), 1e-300)
+        diag = np.where(active, np.maximum(diag, floor[:, None]), 1.0)
+        a = np.where(both, a, eye)
+        rhs = np.where(active, -grad, 0.0)
+        # The damped steps for lam, 4 lam, 16 lam, ... (_TRIALS of them) are tried a
+        # chunk at a time, each chunk in one evaluation; a start takes the first step
+        # that does not raise its cost, as a loop raising lam after each refusal would.
+        taken = np.full(idx.size, -1)
+        new_x = np.empty_like(xr)
+        new_r = np.empty((idx.size, r.shape[1]))
+        new_cost = np.empty(idx.size)
+        new_lam = np.empty(idx.size)
+        for first, last in _TRIAL_CHUNKS:
+            todo = np.flatnonzero(taken < 0)
+            if not todo.size:
                 break
-            lam *= 4.0
-        if not accepted:
-            break
-        moved = float(np.max(np.abs(x_new - x)))
-        gain = cost - cost_new
-        x, r, cost = x_new, r_new, cost_new
-        lam = max(lam / 3.0, 1e-12)
-        if moved < _STEP_TOL or (gain <= _COST_RTOL * cost + 1e-300 and moved < 1e-9):
-            break
-    return x, r, cost
+            lams = lam[idx[todo], None] * _LAM_GROWTH ** np.arange(first, last)  # (t, c)
+            damp = np.where(active[todo], 1.0, 0.0) * diag[todo]
+            systems = a[todo, None] + lams[:, :, None, None] * (damp[:, None, :, None] * eye)
+            steps = np.linalg.solve(systems, np.broadcast_to(
+                rhs[todo, None, :, None], systems.shape[:3] + (1,)))[..., 0]
+            trial = np.clip(xr[todo, None, :] + steps, lower, upper)
+            r_trial = np.asarray(fun(trial.reshape(-1, p))).reshape(trial.shape[:2] + (-1,))
+            costs = np.einsum("tcm,tcm->tc", r_trial, r_trial)
+            ok = costs <= cost[idx[todo], None]
+            got = ok.any(axis=1)
+            k = np.argmax(ok, axis=1)
+            rows = np.flatnonzero(got)
+            sel = todo[rows]
+            taken[sel] = 1
+            new_x[sel] = trial[rows, k[rows]]
+            new_r[sel] = r_trial[rows, k[rows]]
+            new_cost[sel] = costs[rows, k[rows]]
+            new_lam[sel] = lams[rows, k[rows]]
+        refused = taken < 0
+        running[idx[refused]] = False
+        ok = ~refused
+        idx = idx[ok]
+        moved = np.max(np.abs(new_x[ok] - x[idx]), axis=1)
+        gain = cost[idx] - new_cost[ok]
+        x[idx], r[idx], cost[idx] = new_x[ok], new_r[ok], new_cost[ok]
+        lam[idx] = np.maximum(new_lam[ok] / 3.0, 1e-12)
+        done = ((moved < _STEP_TOL) | ((gain <= _COST_RTOL * cost[idx] + 1e-300) & (moved < 1e-9))
+                | (cost[idx] == 0.0))  # an exact fit: nothing left to gain
+        running[idx[done]] = False
+    return [(x[i], r[i], float(cost[i])) for i in range(x.shape[0])]
 
 
 def _jacobian(fun, x, lower, upper, free):
-    """Central differences inside the box (one-sided at a bound)."""
-    cols: list = [None] * x.size
-    for i in range(x.size):
-        if not free[i]:
-            continue
-        xp = x.copy()
-        xm = x.copy()
-        xp[i] = min(x[i] + _FD_STEP, upper[i])
-        xm[i] = max(x[i] - _FD_STEP, lower[i])
-        cols[i] = (fun(xp) - fun(xm)) / (xp[i] - xm[i])
-    # A held parameter's column is zero; its length is that of the residual vector (found
-    # from a free column, or by one evaluation when nothing is free).
-    size = next((c.size for c in cols if c is not None), None)
-    if size is None:
-        size = np.asarray(fun(x)).size
-    return np.column_stack([np.zeros(size) if c is None else c for c in cols])
+    """Central differences inside the box (one-sided at a bound).
+
+    ``x`` is one parameter vector (the Jacobian is ``(residuals, parameters)``) or one
+    per row (then ``(rows, residuals, parameters)``).  Every displaced point of every
+    row is evaluated in one call of ``fun``, which takes a stack of parameter vectors
+    and returns one residual row each.  A held parameter's column is zero.
+    """
+    x = np.asarray(x, dtype=float)
+    if x.ndim == 1:
+        return _jacobian(fun, x[None, :], lower, upper, free)[0]
+    k, p = x.shape
+    moved = [i for i in range(p) if free[i]]
+    if not moved:
+        size = np.asarray(fun(x)).shape[-1]
+        return np.zeros((k, size, p))
+    stack = np.repeat(x[:, None, :], 2 * len(moved), axis=1)  # (k, 2 F, p)
+    for j, i in enumerate(moved):
+        stack[:, 2 * j, i] = np.minimum(x[:, i] + _FD_STEP, upper[i])
+        stack[:, 2 * j + 1, i] = np.maximum(x[:, i] - _FD_STEP, lower[i])
+    rows = np.asarray(fun(stack.reshape(-1, p))).reshape(k, 2 * len(moved), -1)
+    jac = np.zeros((k, rows.shape[-1], p))
+    for j, i in enumerate(moved):
+        jac[:, :, i] = ((rows[:, 2 * j] - rows[:, 2 * j + 1])
+                        / (stack[:, 2 * j, i] - stack[:, 2 * j + 1, i])[:, None])
+    return jac
+
+
+def _median(values: np.ndarray) -> float:
+    """The median of a few values (numpy's own imports numpy.ma on first use, which
+    costs a fresh ``pinlib check`` about 10 ms)."""
+    v = np.sort(np.asarray(values, dtype=float).ravel())
+    mid = v.size // 2
+    return float(v[mid]) if v.size % 2 else float((v[mid - 1] + v[mid]) / 2.0)
 
 
 class _Problem:
@@ -425,7 +487,7 @@ class _Problem:
                                         np.broadcast_to(np.asarray(hi, dtype=float), loads.shape)])
         self._loads2 = np.concatenate([loads, loads])
         self.t_ref = float(times.max())
-        self.r_ref = float(np.median(times) / (rc.RISE_10_90 * np.median(loads)))
+        self.r_ref = float(_median(times) / (rc.RISE_10_90 * _median(loads)))
         r_lo = _R_LOW_FACTOR * float(times.min()) / float(loads.max())
         r_hi = _BOX_FACTOR * float(times.max()) / (rc.RISE_20_80 * float(loads.min()))
         t_hi = _BOX_FACTOR * float(times.max()) / 0.6
@@ -438,14 +500,18 @@ class _Problem:
     def model(self, r_out, t_ramp):
         # Both crossings of every point in one unchecked call (the fit loop evaluates
         # this hundreds of times; fit_driver has checked the inputs once): the same
-        # element-wise arithmetic as rc.ramp_rc_edge_time, so the same results.
+        # element-wise arithmetic as rc.ramp_rc_edge_time, so the same results.  Array
+        # parameters give one row of edge times per value.
         n = self.loads.size
-        tau = r_out * self._loads2
-        t = rc._ramp_rc_crossing(self._levels2, np.asarray(t_ramp, dtype=float), tau)
-        return t[n:] - t[:n]
+        r_out = np.asarray(r_out, dtype=float)[..., None]
+        t_ramp = np.asarray(t_ramp, dtype=float)[..., None]
+        t = rc._ramp_rc_crossing(self._levels2, t_ramp, r_out * self._loads2)
+        return t[..., n:] - t[..., :n]
 
     def residual(self, x):
-        return self.model(self.r_out(x[0]), x[1] * self.t_ref) / self.times - 1.0
+        """Relative residuals at ``x`` (shape ``(2,)``), or one row per row of ``x``."""
+        x = np.asarray(x, dtype=float)
+        return self.model(self.r_out(x[..., 0]), x[..., 1] * self.t_ref) / self.times - 1.0
 
     def grid_cost(self, x0_grid, x1_grid):
         r = self.r_out(np.asarray(x0_grid))[:, None, None]
@@ -489,8 +555,8 @@ def _solve(problem: _Problem, r_fixed: float | None):
         lower = np.array([x0_grid[0], problem.lower[1]])
         upper = np.array([x0_grid[0], problem.upper[1]])
     cost = problem.grid_cost(x0_grid, x1_grid)
-    found = [_lm(problem.residual, np.array([x0_grid[i], x1_grid[j]]), lower, upper, free)
-             for i, j in _grid_starts(cost, _STARTS)]
+    starts = np.array([[x0_grid[i], x1_grid[j]] for i, j in _grid_starts(cost, _STARTS)])
+    found = _lm(problem.residual, starts, lower, upper, free)
     found.sort(key=lambda item: item[2])
     return found, lower, upper, free
 
@@ -640,8 +706,12 @@ def fit_driver(loads, times, levels="10-90", *, r_out=None, r_out_dc=None):
     if r_out_dc is not None:
         r_dc = float(_positive(r_out_dc, "r_out_dc", "[Ω]"))
 
+    conditions = {(float(c), n) for c, n in zip(loads_a, names)}
+    # r_out_dc enters only a fit that cannot separate r_out from t_ramp by itself, so it
+    # is part of the key only then (the SPI engine fits the same points with and without).
+    uses_dc = r_out is None and len(conditions) < 2 and r_out_dc is not None
     key = (loads_a.tobytes(), times_a.tobytes(), tuple(names),
-           None if r_out is None else r_fixed, None if r_out_dc is None else r_dc)
+           None if r_out is None else r_fixed, r_dc if uses_dc else None)
     cached = _FIT_CACHE.get(key)
     if cached is not None:
         _FIT_CACHE.move_to_end(key)
@@ -651,7 +721,6 @@ def fit_driver(loads, times, levels="10-90", *, r_out=None, r_out_dc=None):
 
     notes: list[str] = []
     messages = _decreasing_points(loads_a, times_a, names)
-    conditions = {(float(c), n) for c, n in zip(loads_a, names)}
     if r_out is not None:
         method = "fixed-r_out"
     elif len(conditions) >= 2:

@@ -425,7 +425,9 @@ def _ramp_rc_crossing(f, t_ramp, tau):
     s_after = m + np.log(phi_m) - np.log1p(-f)
 
     target = f * m
-    s = np.minimum(m, target + 1.0)
+    # Newton from above the root converges without overshoot (g is convex and rising):
+    # g(s) >= s - 1 everywhere and g(s) >= s^2 / 3 for s <= 1 bound the root from above.
+    s = np.minimum(m, np.where(target <= 1.0 / 3.0, np.sqrt(3.0 * target), target + 1.0))
     active = ~after & (target > 0.0)
     for _ in range(_MAX_NEWTON):
         if not np.any(active):
