@@ -1,22 +1,26 @@
 """Every problem a user can meet, in one place.
 
-Each constant is the ``problem`` of a :class:`~pinlib.errors.PinlibError`: the words
+Most constants are the ``problem`` of a :class:`~pinlib.errors.PinlibError`: the words
 that say what is wrong.  The error adds where (file, line, field), the value that was
 given, what was expected and a hint, so these texts stay short and need no location.
 A constant with ``{placeholders}`` is a template, filled with ``str.format``::
 
     raise DesignError(messages.BUS_HAS_NO_MODE.format(protocol="spi"), ...)
 
+The other constants are the texts of pinlib's warnings (the ``ValidityWarning`` of
+``pinlib/physics/lines.py``, the ``FitWarning`` of ``pinlib/physics/driver.py``) and the
+sentences that the design-review report (``pinlib/review.py``) prints where a chart
+could not be drawn, no sampled check varies, or there is no snapshot to compare with.
+
 ``tests/test_messages.py`` triggers each of them once and checks the text.
 
-Not converted yet (it still writes its texts where it raises): ``pinlib/review.py``.
-Of the warnings only the validity warning of ``pinlib/physics/lines.py`` is here; the
-others (``warnings.warn`` with a text of their own) are not listed yet.  Texts that pydantic writes
-itself for a value of the wrong type (``Input should be a valid string``) are passed
-through in pydantic's words.  Two ``ValueError`` texts of the converted modules are not
-here because no file or command line reaches them, only a program calling pinlib
-wrongly: ``parse`` with an unknown expected unit, and ``Sourced.at`` of a relative
-threshold without a supply.
+Not converted yet: the warning of ``pinlib/physics/waveform.py`` that a line section's
+delay was rounded to whole time steps (a ``ValidityWarning`` with a text of its own),
+which is being converted separately.  Texts that pydantic writes itself for a value of
+the wrong type (``Input should be a valid string``) are passed through in pydantic's
+words.  Two ``ValueError`` texts of the converted modules are not here because no file
+or command line reaches them, only a program calling pinlib wrongly: ``parse`` with an
+unknown expected unit, and ``Sourced.at`` of a relative threshold without a supply.
 """
 
 from __future__ import annotations
@@ -205,6 +209,23 @@ UNKNOWN_MEASURING_LEVELS = "unknown measuring levels"
 NO_EDGE_POINTS = "no edge points"
 LENGTHS_DIFFER = "{a} and {b} differ in length"
 DRIVER_NEEDS_PUSH_PULL = "a driver model needs a push-pull pin"
+# FitWarning texts of fit_driver, not errors (times, loads and resistances come filled in
+# with their SI prefix, "2.2 ns"; levels as "10-90"; tolerances as "5%")
+FIT_EDGE_FALLS_WITH_LOAD = ("{levels} % edge time falls as the load rises ({time_a} at "
+                            "{load_a}, {time_b} at {load_b}): no positive r_out fits these "
+                            "points")
+FIT_R_OUT_TO_ZERO = ("the best fit drives r_out to zero ({r_out}): the edge time hardly grows "
+                     "with load, so these points support no positive r_out")
+FIT_R_OUT_ALONE_TOO_SLOW = ("r_out {r_out} alone gives {model} at {load}, slower than the "
+                            "datasheet's {time} with no ramp at all")
+FIT_POINTS_DO_NOT_FIT = ("the points do not fit the driver model within {tolerance}: at {load} "
+                         "({levels} %) the model gives {model} against {time}")
+FIT_R_OUT_POORLY_DETERMINED = ("r_out is poorly determined by these points: a {tolerance} error "
+                               "in the edge times moves it by about {spread} (r_out C is small "
+                               "against t_ramp at every load, or the loads are too close)")
+FIT_TWO_DRIVERS = ("the points fit two drivers within {tolerance}: r_out {r_out} with t_ramp "
+                   "{t_ramp}, and r_out {other_r_out} with t_ramp {other_t_ramp}; the first is "
+                   "used")
 
 # ---------------------------------------------------------------- bus engines
 # pinlib/buses/limits.py, opendrain.py, pushpull.py, pushline.py
@@ -279,6 +300,16 @@ NO_SPI_BUS = "the design has no SPI bus"
 NO_SPI_BUS_OF_ID = "no SPI bus of that id"
 NO_TEAM_PART = "no team part to record into"
 
+# ---------------------------------------------------------------- pinlib/review.py
+# Sentences the design-review report prints in place of what it could not draw or
+# compare (whole sentences, not the problem of an error)
+CHART_NOT_DRAWN = "Chart not drawn: {error}"
+CHART_NOT_DRAWN_WITH_TITLE = "Chart not drawn ({title}): {error}"
+NO_SAMPLED_CHECK_VARIES = "No sampled check varies over the boards: nothing to draw."
+NO_SNAPSHOT_TO_COMPARE = ("No snapshot to compare with. Save one with `pinlib check {design} "
+                          "--save`; later reports list every check whose status changed, every "
+                          "figure that moved and the part values behind the change.")
+
 # ---------------------------------------------------------------- commands check, report,
 # candidates
 NOT_A_WHOLE_NUMBER = "not a whole number: {text!r}"
@@ -289,7 +320,7 @@ MONTE_CARLO_UNAVAILABLE = "the Monte Carlo engine is not available in this pinli
 REPORT_TARGET_IS_FOLDER = "the report target is a folder"
 REPORT_FOLDER_MISSING = "the report's folder does not exist"
 
-#: The modules whose raise sites take their texts from here.
+#: The modules whose raise sites, warnings and report sentences take their texts from here.
 MODULES = (
     "pinlib.tomlfile",
     "pinlib.quantity",
@@ -321,6 +352,7 @@ MODULES = (
     "pinlib.plotdata",
     "pinlib.charts",
     "pinlib.widgets",
+    "pinlib.review",
     "pinlib.commands.check",
     "pinlib.commands.report",
     "pinlib.commands.candidates",

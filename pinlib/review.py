@@ -47,6 +47,7 @@ import re
 from dataclasses import dataclass, field
 
 from pinlib import __version__
+from pinlib import messages as M
 from pinlib.errors import PinlibError
 from pinlib.quantity import format_si
 from pinlib.report import format_value
@@ -708,9 +709,7 @@ def _part_facts(p: dict) -> list[tuple[str, str]]:
 def _no_snapshot_text(design) -> str:
     path = getattr(design, "path", None)
     shown = str(path) if path else "DESIGN"
-    return (f"No snapshot to compare with. Save one with `pinlib check {shown} --save`; later "
-            "reports list every check whose status changed, every figure that moved and the "
-            "part values behind the change.")
+    return M.NO_SNAPSHOT_TO_COMPARE.format(design=shown)
 
 
 # =========================================================================== HTML
@@ -857,7 +856,7 @@ class _Html:
         if chart.svg is not None:
             self.w(chart.svg)
         else:
-            self.w(f'<p class="none">Chart not drawn: {_e(chart.error)}</p>')
+            self.w(f'<p class="none">{_e(M.CHART_NOT_DRAWN.format(error=chart.error))}</p>')
         self.w(f"<figcaption><strong>{_e(chart.title)}.</strong> {_e(chart.caption)}"
                "</figcaption>", "</figure>")
 
@@ -887,8 +886,7 @@ class _Html:
                 self.chart(chart)
             self.w("</div>")
         else:
-            self.w('<p class="none">No sampled check varies over the boards: nothing to '
-                   "draw.</p>")
+            self.w(f'<p class="none">{_e(M.NO_SAMPLED_CHECK_VARIES)}</p>')
         self.w("</section>")
 
     # -------------------------------------------------------------- parts
@@ -1086,7 +1084,8 @@ class _Markdown:
 
     def chart(self, chart: ReviewChart):
         if chart.svg is None:
-            self.w(f"*Chart not drawn ({_mt(chart.title)}): {_mt(chart.error)}*", "")
+            text = M.CHART_NOT_DRAWN_WITH_TITLE.format(title=chart.title, error=chart.error)
+            self.w(f"*{_mt(text)}*", "")
             return
         alt = chart.title.replace("[", "(").replace("]", ")")
         if self.dir is None:

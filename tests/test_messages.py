@@ -125,7 +125,9 @@ def _fails(func, env):
 
 # Each case: (constant name, the expected problem text, a function that meets it).  The
 # function returns either the PinlibError it caught or the text of a message printed by
-# the command line.
+# the command line (or a warning's text, or the report that shows the message).  An
+# expected text that holds what another part of pinlib answers at run time is given as a
+# function that builds it.
 CASES = []
 
 
@@ -1116,6 +1118,77 @@ def _(env):
     return _fails(lambda e: driver_from_pin(pin, 3.3), env)
 
 
+def _fit_warnings(*args, **kw) -> str:
+    """The FitWarning texts of one fit, one a line."""
+    from pinlib.errors import FitWarning
+    from pinlib.physics.driver import fit_driver
+    with pytest.warns(FitWarning) as caught:
+        fit_driver(*args, **kw)
+    return "\n".join(str(w.message) for w in caught)
+
+
+def _edges(r_out, t_ramp, loads, levels="10-90"):
+    """Datasheet points made from the driver model itself."""
+    import numpy as np
+
+    from pinlib.physics.driver import edge_time
+    return edge_time(r_out, t_ramp, np.array(loads), levels)
+
+
+# the points themselves: 2 ns at 15 pF, then 1.8 ns at 50 pF
+@case("FIT_EDGE_FALLS_WITH_LOAD", M.FIT_EDGE_FALLS_WITH_LOAD.format(
+    levels="10-90", time_a="2 ns", load_a="15 pF", time_b="1.8 ns", load_b="50 pF"))
+def _(env):
+    return _fit_warnings([15e-12, 50e-12], [2.0e-9, 1.8e-9])
+
+
+# derived: the points are the model's own edges of 0.5 Ω behind a 2 ns ramp, so the fit
+# returns 500 mΩ, whose RC edge (ln 9 * 0.5 Ω * 50 pF = 55 ps) is under 5 % of the 1.6 ns
+# edges
+@case("FIT_R_OUT_TO_ZERO", M.FIT_R_OUT_TO_ZERO.format(r_out="500 mΩ"))
+def _(env):
+    loads = [15e-12, 50e-12]
+    return _fit_warnings(loads, _edges(0.5, 2e-9, loads))
+
+
+# derived: 25 Ω into 50 pF with no ramp: ln 9 * 25 Ω * 50 pF = 2.7465 ns (10-90 %)
+@case("FIT_R_OUT_ALONE_TOO_SLOW", M.FIT_R_OUT_ALONE_TOO_SLOW.format(
+    r_out="25 Ω", model="2.747 ns", load="50 pF", time="1 ns"))
+def _(env):
+    return _fit_warnings([50e-12], [1e-9], r_out=25.0)
+
+
+# derived: 25 Ω into 50 pF with no ramp: ln 4 * 25 Ω * 50 pF = 1.7329 ns (20-80 %); 5 % is
+# the fit's tolerance (pinlib.physics.driver, common practice, no source)
+@case("FIT_POINTS_DO_NOT_FIT", M.FIT_POINTS_DO_NOT_FIT.format(
+    tolerance="5%", load="50 pF", levels="20-80", model="1.733 ns", time="1 ns"))
+def _(env):
+    return _fit_warnings([50e-12], [1e-9], "20-80", r_out=25.0)
+
+
+# derived: linear error propagation at the exact fit of 30 Ω behind a 2 ns ramp at 20 and
+# 22 pF: 1 % * sqrt of the r_out entry of (J^T J)^-1, J = d ln(edge) / d(ln r_out,
+# ln t_ramp) by central differences of edge_time, is 16.98 %
+@case("FIT_R_OUT_POORLY_DETERMINED", M.FIT_R_OUT_POORLY_DETERMINED.format(
+    tolerance="1%", spread="17%"))
+def _(env):
+    loads = [20e-12, 22e-12]
+    return _fit_warnings(loads, _edges(30.0, 2e-9, loads))
+
+
+# derived: the points are 15 Ω behind an 800 ps ramp at 30 pF, 10-90 % and 20-80 %; 17.78 Ω
+# behind 302.1 ps is the other driver with the same two edges (checked in the case); the
+# fit keeps the shorter ramp
+@case("FIT_TWO_DRIVERS", M.FIT_TWO_DRIVERS.format(
+    tolerance="1%", r_out="17.78 Ω", t_ramp="302.1 ps", other_r_out="15 Ω",
+    other_t_ramp="800 ps"))
+def _(env):
+    loads, levels = [30e-12, 30e-12], ["10-90", "20-80"]
+    times = _edges(15.0, 0.8e-9, loads, levels)
+    assert _edges(17.78, 302.1e-12, loads, levels) == pytest.approx(times, rel=2e-4)
+    return _fit_warnings(loads, times, levels)
+
+
 # ---------------------------------------------------------------- bus engines
 def _check(design):
     from pinlib.check import check_design
@@ -1556,6 +1629,55 @@ def _(env):
     return r.errors["part"]
 
 
+# ---------------------------------------------------------------- pinlib/review.py
+# Samples of one check in the plain protocol of pinlib.review, with a limit kind the
+# histogram refuses ("minimum" for "min"), so that its chart cannot be drawn.
+MC_REFUSED = {"id": "rise-time", "samples": [1.0e-7, 1.5e-7, 2.0e-7, 2.5e-7], "limit": 3e-7,
+              "unit": "s", "kind": "minimum"}
+
+
+def _histogram_refusal() -> str:
+    """The message with which the histogram refuses MC_REFUSED."""
+    m = MC_REFUSED
+    err = _fails(lambda e: _charts().histogram(m["samples"], limit=m["limit"], unit=m["unit"],
+                                               label=m["id"], limit_kind=m["kind"]), None)
+    return err.message
+
+
+def _review(env, render: str, mc) -> str:
+    """The review of an I2C design with Monte Carlo samples, rendered by ``render``."""
+    from pinlib import review
+    design = env.design(I2C_BUS)
+    return getattr(review, render)(design, _check(design), mc=mc)
+
+
+@case("CHART_NOT_DRAWN", lambda: M.CHART_NOT_DRAWN.format(error=_histogram_refusal()))
+def _(env):
+    import html
+    return html.unescape(_review(env, "render_html", [MC_REFUSED]))
+
+
+@case("CHART_NOT_DRAWN_WITH_TITLE", lambda: M.CHART_NOT_DRAWN_WITH_TITLE.format(
+    title="Monte Carlo: rise-time", error=_histogram_refusal()))
+def _(env):
+    return _review(env, "render_markdown", [MC_REFUSED])
+
+
+@case("NO_SAMPLED_CHECK_VARIES")
+def _(env):
+    same = {"id": "rise-time", "samples": [1.0e-7] * 4, "limit": 3e-7, "unit": "s"}
+    return _review(env, "render_html", [same])
+
+
+@case("NO_SNAPSHOT_TO_COMPARE", M.NO_SNAPSHOT_TO_COMPARE.format(design="design.toml"))
+def _(env):
+    import html
+    env.write("design.toml", HEAD + I2C_BUS)
+    env.monkeypatch.chdir(env.tmp)
+    assert main(["report", "design.toml", "--html", "r.html"]) == 0, env.capsys.readouterr().err
+    return html.unescape((env.tmp / "r.html").read_text(encoding="utf-8"))
+
+
 # ---------------------------------------------------------------- commands: arguments
 @case("NOT_A_WHOLE_NUMBER", M.NOT_A_WHOLE_NUMBER.format(text="many"))
 def _(env):
@@ -1611,6 +1733,8 @@ def _(env):
 def test_message(name, expected, trigger, tmp_path, monkeypatch, capsys):
     text = getattr(M, name)
     expected = text if expected is None else expected
+    if callable(expected):
+        expected = expected()
     got = trigger(Env(tmp_path, monkeypatch, capsys))
     if isinstance(got, PinlibError):
         assert got.problem == expected

@@ -608,10 +608,9 @@ def _decreasing_points(loads, times, names) -> list[str]:
         for k in range(1, c.size):
             # 1e-12: ignore differences at the level of rounding in the arithmetic.
             if c[k] > c[k - 1] and t[k] < t[k - 1] * (1.0 - 1e-12):
-                out.append(
-                    f"{name} % edge time falls as the load rises ({_fmt(t[k - 1], 's')} at "
-                    f"{_fmt(c[k - 1], 'F')}, {_fmt(t[k], 's')} at {_fmt(c[k], 'F')}): "
-                    "no positive r_out fits these points")
+                out.append(M.FIT_EDGE_FALLS_WITH_LOAD.format(
+                    levels=name, time_a=_fmt(t[k - 1], "s"), load_a=_fmt(c[k - 1], "F"),
+                    time_b=_fmt(t[k], "s"), load_b=_fmt(c[k], "F")))
     return out
 
 
@@ -763,38 +762,31 @@ def fit_driver(loads, times, levels="10-90", *, r_out=None, r_out_dc=None):
     at_zero = (method == "least-squares"
                and rc.RISE_10_90 * r_fit * float(loads_a.max()) < _RC_SHARE * float(times_a.min()))
     if at_zero:
-        messages.append(
-            f"the best fit drives r_out to zero ({_fmt(r_fit, 'Ω')}): the edge time hardly "
-            "grows with load, so these points support no positive r_out")
+        messages.append(M.FIT_R_OUT_TO_ZERO.format(r_out=_fmt(r_fit, "Ω")))
     if t_fit <= 0.0 and np.any(rel > _RESIDUAL_RTOL):
         slow = int(np.argmax(rel))
-        messages.append(
-            f"r_out {_fmt(r_fit, 'Ω')} alone gives {_fmt(model[slow], 's')} at "
-            f"{_fmt(loads_a[slow], 'F')}, slower than the datasheet's "
-            f"{_fmt(times_a[slow], 's')} with no ramp at all")
+        messages.append(M.FIT_R_OUT_ALONE_TOO_SLOW.format(
+            r_out=_fmt(r_fit, "Ω"), model=_fmt(model[slow], "s"), load=_fmt(loads_a[slow], "F"),
+            time=_fmt(times_a[slow], "s")))
     worst = int(np.argmax(np.abs(rel)))
     if abs(rel[worst]) > _RESIDUAL_RTOL:
-        messages.append(
-            f"the points do not fit the driver model within {_RESIDUAL_RTOL:.0%}: at "
-            f"{_fmt(loads_a[worst], 'F')} ({names[worst]} %) the model gives "
-            f"{_fmt(model[worst], 's')} against {_fmt(times_a[worst], 's')}")
+        messages.append(M.FIT_POINTS_DO_NOT_FIT.format(
+            tolerance=f"{_RESIDUAL_RTOL:.0%}", load=_fmt(loads_a[worst], "F"),
+            levels=names[worst], model=_fmt(model[worst], "s"), time=_fmt(times_a[worst], "s")))
     if method == "least-squares" and not at_zero:
         spread = _r_out_spread(problem, x, lower, upper, free)
         if not spread <= _R_SPREAD_LIMIT:
-            messages.append(
-                f"r_out is poorly determined by these points: a {_POINT_RTOL:.0%} error in "
-                f"the edge times moves it by about {_spread_text(spread)} "
-                "(r_out C is small against t_ramp at every load, or the loads are too close)")
+            messages.append(M.FIT_R_OUT_POORLY_DETERMINED.format(
+                tolerance=f"{_POINT_RTOL:.0%}", spread=_spread_text(spread)))
         rivals = [item for item in found[1:]
                   if np.max(np.abs(item[1])) <= _POINT_RTOL
                   and abs(item[0][0] - x[0]) > math.log1p(_R_SPREAD_LIMIT)]
         if rivals and np.max(np.abs(rel)) <= _POINT_RTOL:
             other = rivals[0][0]
-            messages.append(
-                f"the points fit two drivers within {_POINT_RTOL:.0%}: r_out "
-                f"{_fmt(r_fit, 'Ω')} with t_ramp {_fmt(t_fit, 's')}, and r_out "
-                f"{_fmt(float(problem.r_out(other[0])), 'Ω')} with t_ramp "
-                f"{_fmt(float(other[1] * problem.t_ref), 's')}; the first is used")
+            messages.append(M.FIT_TWO_DRIVERS.format(
+                tolerance=f"{_POINT_RTOL:.0%}", r_out=_fmt(r_fit, "Ω"), t_ramp=_fmt(t_fit, "s"),
+                other_r_out=_fmt(float(problem.r_out(other[0])), "Ω"),
+                other_t_ramp=_fmt(float(other[1] * problem.t_ref), "s")))
 
     for msg in messages:
         warnings.warn(msg, FitWarning, stacklevel=2)
