@@ -22,6 +22,9 @@ __all__ = [
     "check_max",
     "check_min",
     "check_true",
+    "min_margin",
+    "status_codes",
+    "STATUS_CODES",
     "Group",
     "LineResult",
     "SegmentResult",
@@ -123,6 +126,32 @@ def _status(margin: float, warn_margin: float) -> str:
     if margin < 0 or math.isnan(margin):
         return "fail"
     return "warn" if margin < warn_margin else "pass"
+
+
+#: Integer code of each status in arrays of many boards (worse is larger).
+STATUS_CODES = {"pass": 0, "warn": 1, "fail": 2}
+
+
+def status_codes(margin, warn_margin: float):
+    """:func:`_status` over an array of margins, as :data:`STATUS_CODES`."""
+    import numpy as np
+
+    m = np.asarray(margin, dtype=float)
+    fail = (m < 0) | np.isnan(m)
+    warn = ~fail & (m < warn_margin) & ~(np.isinf(m) & (m > 0))
+    return np.where(fail, 2, np.where(warn, 1, 0))
+
+
+def min_margin(value, limit):
+    """The margin of :func:`check_min` (``value >= limit``) over arrays."""
+    import numpy as np
+
+    value = np.asarray(value, dtype=float)
+    limit = np.broadcast_to(np.asarray(limit, dtype=float), value.shape)
+    safe = np.where(limit != 0, np.abs(limit), 1.0)
+    with np.errstate(over="ignore", invalid="ignore"):  # as float arithmetic: inf, NaN
+        ratio = (value - limit) / safe
+    return np.where(limit != 0, ratio, np.where(value >= 0, math.inf, -math.inf))
 
 
 def check_max(id, value, limit, unit, source, message, *, warn_margin=0.10, **kw) -> Check:

@@ -27,8 +27,9 @@ pin capacitance, worst thresholds) stay what they are: they are limits, not spre
 Everything is vectorized: a batch of boards goes through
 :func:`pinlib.buses.odbatch.build` in one numpy pass (in chunks, for the progress
 bar).  Push-pull buses (SPI, GPIO) go through :func:`pinlib.buses.ppbatch.build`:
-supplies, line lengths and extra line capacitance drawn, each distinct board evaluated
-by the push-pull engine itself (not vectorized yet).
+supplies, line lengths and extra line capacitance drawn; a large batch is evaluated from
+tables of the push-pull engine over the tolerance box, verified against the engine
+(:mod:`pinlib.buses.pptable`), a small one (and every corner) by the engine itself.
 
 References
 ----------
@@ -86,6 +87,11 @@ EXHAUSTIVE_LIMIT = 12
 
 #: A parameter counts as a sensitivity when its standardized coefficient is this large.
 SENSITIVITY_FLOOR = 0.05
+
+#: Sensitivities are fitted on at most this many boards (the first drawn): the standard
+#: error of a standardized coefficient is then about 1/sqrt(100,000) = 0.003, far below
+#: SENSITIVITY_FLOOR, and a run of millions of boards does not fit them on all.
+SENSITIVITY_BOARDS = 100_000
 
 #: Smallest factor a parameter may take (a 100 % tolerance must not give 0 Ω or 0 V).
 _FLOOR = 1e-6
@@ -733,6 +739,12 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
     rng = np.random.default_rng(ss)
     u_all = np.empty((n, len(params)))
     stores: dict[str, dict] = {}
+    # Push-pull buses: one table per bus for the whole run (pinlib.buses.pptable); a
+    # normal draw is covered to 4σ (4/3 of the tolerance), boards beyond by the engine.
+    tables: dict = {}
+    span = 4.0 / 3.0 if design.distribution == "normal" else 1.0
+    pp_notes: list[str] = []
+    engine_boards: dict[str, int] = {}
     bar = progress_bar(n, desc="Monte Carlo", unit="board", enabled=progress)
     with bar:
         for start in range(0, n, chunk):
@@ -742,7 +754,12 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
             scen = Sampled(u, params)
             for bus in design.buses:
                 if bus.protocol in ppb.PROTOCOLS:
-                    bb = ppb.build(bus, design, scen.factors(bus), m, nominal=nominal[bus.id])
+                    bb = ppb.build(bus, design, scen.factors(bus), m, nominal=nominal[bus.id],
+                                   tables=tables, span=span, floor=_FLOOR)
+                    for note in bb.notes:
+                        if note not in pp_notes:
+                            pp_notes.append(note)
+                    engine_boards[bus.id] = engine_boards.get(bus.id, 0) + bb.engine_boards
                 elif bus.id in collected:
                     bb = ob.build(bus, design, scen, collected=collected[bus.id])
                 else:
@@ -771,7 +788,9 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
         if st is None:
             continue
         bus_ok = np.ones(n, dtype=bool)
-        fits = _sensitivities(u_all, st["margin"], params)
+        k_fit = min(n, SENSITIVITY_BOARDS)
+        fits = _sensitivities(u_all[:k_fit], [None if c is None else c[:k_fit]
+                                              for c in st["margin"]], params)
         for name, c, mg, val, fail, (sens, r2) in zip(st["names"], st["checks"], st["margin"],
                                                       st["value"], st["fail"], fits, strict=True):
             bus_ok &= ~fail
@@ -789,9 +808,15 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
     if all_ok is not None:
         k = int(np.count_nonzero(all_ok))
         board = Yield(k, n, wilson_interval(k, n))
-    notes = _not_sampled(design)
+    notes = _not_sampled(design) + pp_notes
+    for bus_id, k in engine_boards.items():
+        if k and not isinstance(tables.get(bus_id, ""), str):
+            notes.append(f"bus {bus_id}: {k} boards evaluated by the engine (outside the "
+                         "tolerance box, or close to failing)")
     if design.distribution == "normal":
         notes.append("normal draws: each tolerance is 3σ (a value may lie beyond it)")
+    if n > SENSITIVITY_BOARDS and stores:
+        notes.append(f"sensitivities fitted on the first {SENSITIVITY_BOARDS:,} boards")
     return McResult(design.title, n, int(ss.entropy), design.distribution, params, checks, buses,
                     board, u_all, notes)
 

@@ -4,15 +4,18 @@
 buses.  A variant is the bus with its own supply rails (``supply_tolerance``), its own
 line lengths (``length_tolerance``: every section of a line scaled together) and its
 own extra line capacitance (``capacitance_tolerance``).  The design format gives a
-line's series resistor no tolerance, so it stays nominal ("auto" chooses again for
-each variant, as the engine would on that board).
+line's series resistor no tolerance, so it stays nominal; a line whose resistor is
+"auto" keeps the value the engine chose on the nominal board (a built board carries
+the resistor the design chose, whatever its own trace turned out to be).
 
-Each variant is evaluated by the engine itself
-(:func:`pinlib.buses.pushpull.evaluate_bus` on the varied bus), so that every margin
-is the engine's.  The line engine picks its time grid from each variant's own time
-constants and delays, and the waveform solvers share one grid (and one delay per
-section) across a batch, so a batched solve could not reproduce each variant's own
-figures; variants with identical values are evaluated once.
+A small batch (corners, a short Monte Carlo run) is evaluated by the engine itself,
+variant by variant (:func:`pinlib.buses.pushpull.evaluate_bus` on the varied bus;
+identical variants once), so that every margin is the engine's.  The line engine picks
+its time grid from each variant's own time constants and delays, so the waveform
+solvers cannot share one batched solve across variants.  A large batch is evaluated
+from tables of the engine over the tolerance box (:mod:`pinlib.buses.pptable`), built
+once per run, verified against the engine, with the engine taking every board outside
+the box or close to failing.
 
 Not drawn yet: the pin capacitance of a device (``capacitance_tolerance`` of a
 device), which sits inside the stored part; the result of :func:`parameters` lists
@@ -22,7 +25,7 @@ only what is drawn.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 from typing import Any
 
 import numpy as np
@@ -36,7 +39,9 @@ __all__ = [
     "PpBatch",
     "parameter_specs",
     "vary_bus",
+    "chosen_resistors",
     "check_names",
+    "flat_checks",
     "build",
 ]
 
@@ -91,7 +96,29 @@ def parameter_specs(bus: Bus) -> list[tuple]:
     return out
 
 
-def vary_bus(bus: Bus, factor) -> Bus:
+def chosen_resistors(nominal) -> dict[str, float]:
+    """The series resistor "auto" chose on each line of a push-pull result, by signal.
+
+    Parameters
+    ----------
+    nominal : BusResult
+        The engine's result of the bus as designed. [1]
+
+    Returns
+    -------
+    dict of str to float
+        Only the lines whose setting was "auto" (their ``series-termination`` check
+        holds the choice; 0 is no resistor). [Ω]
+    """
+    out = {}
+    for ln in nominal.lines:
+        c = ln.check("series-termination")
+        if c is not None and c.value is not None:
+            out[ln.signal] = float(c.value)
+    return out
+
+
+def vary_bus(bus: Bus, factor, resistors: dict[str, float] | None = None) -> Bus:
     """The bus with its toleranced values scaled.
 
     Parameters
@@ -101,12 +128,15 @@ def vary_bus(bus: Bus, factor) -> Bus:
     factor : callable
         ``factor(key)``: the factor ``1 + tolerance·u`` of a parameter key, or None
         when the key is not varied. [1]
+    resistors : dict, optional
+        A fixed series resistor for lines set to "auto" (:func:`chosen_resistors`). [Ω]
 
     Returns
     -------
     Bus
         A copy with its supplies, line lengths and extra capacitances multiplied. [1]
     """
+    resistors = resistors or {}
     vtol = bus.supply_tolerance or 0.0
 
     def rail(v):
@@ -126,11 +156,14 @@ def vary_bus(bus: Bus, factor) -> Bus:
                                                 for s in line.sections))
         if fc is not None:
             line = replace(line, extra_capacitance=line.extra_capacitance * fc)
+        if line.series_resistor == "auto" and sig in resistors:
+            rs = resistors[sig]
+            line = replace(line, series_resistor=rs if rs > 0 else "none")
         lines[sig] = line
     return replace(bus, supply=rail(bus.supply), devices=devices, lines=lines)
 
 
-def _flat(res) -> list[tuple]:
+def flat_checks(res) -> list[tuple]:
     """Every check of a push-pull result in order: (signal or None, Check)."""
     out = [(ln.signal, c) for ln in res.lines for c in ln.checks]
     out += [(None, c) for c in res.checks]
@@ -154,7 +187,7 @@ def check_names(bus: Bus, res) -> list[dict]:
         ``signal``. [1]
     """
     out, used = [], {}
-    for sig, c in _flat(res):
+    for sig, c in flat_checks(res):
         name = f"{bus.id} {sig} {c.id}" if sig else f"{bus.id} {c.id}"
         if c.subject:
             name += f" {c.subject}"
@@ -187,11 +220,17 @@ class PpBatch:
     items : list of BatchCheck
         One per check, arrays of shape ``(n,)``; ``margin`` None for a check without
         one (a yes/no check). [1]
+    notes : list of str
+        How the variants were evaluated (engine, or tables and their verification). [1]
+    engine_boards : int
+        Variants evaluated by the engine itself. [1]
     """
 
     n: int
     names: list
     items: list
+    notes: list = field(default_factory=list)
+    engine_boards: int = 0
 
     def checks(self):
         """Every check: (None, BatchCheck), like :meth:`odbatch.BusBatch.checks`."""
@@ -200,8 +239,9 @@ class PpBatch:
 
 
 def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
-          nominal=None) -> PpBatch:
-    """Evaluate ``n`` variants of a push-pull bus with the engine.
+          nominal=None, tables: dict | None = None, span: float = 1.0,
+          floor: float = 0.0) -> PpBatch:
+    """Evaluate ``n`` variants of a push-pull bus.
 
     Parameters
     ----------
@@ -215,15 +255,25 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
         Variants. [1]
     nominal : BusResult, optional
         The engine's result of the bus as designed (names the checks). [1]
+    tables : dict, optional
+        Where the tables of :mod:`pinlib.buses.pptable` are kept between calls, by bus
+        id (a Monte Carlo run passes one dict for all its chunks).  Without it, or when
+        a table would cost more engine evaluations than there are distinct variants,
+        every variant is evaluated by the engine. [1]
+    span, floor : float, optional
+        The tolerances a table covers (1 for uniform draws) and the smallest factor a
+        draw takes. [1]
 
     Returns
     -------
     PpBatch
         A check's margin, value and status for each variant; a check a variant does
         not have (its engine result lists other checks) has a NaN margin and passes.
+        ``notes`` say how the variants were evaluated.
     """
     nominal = nominal if nominal is not None else pp.evaluate_bus(bus, design)
     names = check_names(bus, nominal)
+    chosen = chosen_resistors(nominal)
     index = {nm["name"]: i for i, nm in enumerate(names)}
     m = len(names)
     margin = np.full((n, m), np.nan)
@@ -233,13 +283,41 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
     keys = sorted(factors, key=repr)
     table = (np.stack([np.asarray(factors[k], dtype=float).reshape(n) for k in keys], axis=1)
              if keys else np.zeros((n, 0)))
-    rows, inverse = np.unique(table, axis=0, return_inverse=True)
+    notes: list[str] = []
+    todo = np.ones(n, dtype=bool)  # the variants the engine evaluates
+    grid = _table(bus, design, chosen, tables, span, floor, n) if keys else None
+    if grid is not None:
+        inside = grid.inside(factors, n)
+        if inside.all():
+            got = grid.evaluate(factors, n, [nm["name"] for nm in names])
+            margin, value, limit, status = (got[k] for k in ("margin", "value", "limit",
+                                                             "status"))
+        elif inside.any():
+            got = grid.evaluate({k: np.asarray(f, dtype=float).reshape(n)[inside]
+                                 for k, f in factors.items()}, int(inside.sum()),
+                                [nm["name"] for nm in names])
+            margin[inside], value[inside] = got["margin"], got["value"]
+            limit[inside], status[inside] = got["limit"], got["status"]
+        todo = ~inside
+        # A board whose interpolated margin is within the table's error of failing goes
+        # to the engine: its pass or fail must not rest on the interpolation.
+        band = 2.0 * grid.max_error + 1e-12
+        moving = grid.interpolated([nm["name"] for nm in names])
+        if moving.any():
+            todo |= np.any(np.abs(margin[:, moving]) < band, axis=1)
+        notes.append(_table_note(bus, grid))
+    elif tables is not None and isinstance(tables.get(bus.id), str):
+        notes.append(f"bus {bus.id}: every board evaluated by the engine (no table over its "
+                     f"tolerances: {tables[bus.id]})")
+    where = np.flatnonzero(todo)
+    rows, inverse = np.unique(table[where], axis=0, return_inverse=True)
     inverse = np.asarray(inverse).reshape(-1)
     for r, row in enumerate(rows):
         got = dict(zip(keys, row, strict=True))
-        res = nominal if not keys else pp.evaluate_bus(vary_bus(bus, got.get), design)
-        at = inverse == r
-        for nm, (_, c) in zip(check_names(bus, res), _flat(res), strict=True):
+        res = nominal if not keys else pp.evaluate_bus(vary_bus(bus, got.get, chosen),
+                                                      design)
+        at = where[inverse == r]
+        for nm, (_, c) in zip(check_names(bus, res), flat_checks(res), strict=True):
             j = index.get(nm["name"])
             if j is None:
                 continue
@@ -256,4 +334,33 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
             ec.id, "", nm["signal"], value[:, j] if has_value else None,
             limit[:, j] if has_value else None, margin[:, j] if has_margin else None,
             status[:, j], ec.unit))
-    return PpBatch(n, names, items)
+    return PpBatch(n, names, items, notes, int(where.size))
+
+
+def _table(bus, design, chosen, tables, span, floor, distinct):
+    """The bus's table from ``tables``, built on first use when it costs fewer engine
+    evaluations than the distinct variants; None when there is none."""
+    if tables is None:
+        return None
+    if bus.id in tables:
+        got = tables[bus.id]
+        return None if isinstance(got, str) else got
+    from pinlib.buses import pptable
+
+    axes = pptable.axes_of(parameter_specs(bus), span, floor)
+    cost = math.prod(pptable.NODES[ax.kind] for ax in axes) + pptable.VERIFY
+    if cost >= distinct:
+        return None  # cheaper to run the engine on each variant (and not remembered)
+    got = tables[bus.id] = pptable.tabulate(bus, design, axes, chosen)
+    return None if isinstance(got, str) else got
+
+
+def _table_note(bus: Bus, grid) -> str:
+    from pinlib.buses import pptable
+
+    axes = ", ".join(f"{ax.kind} factor {ax.lo:.3g}–{ax.hi:.3g}" for ax in grid.axes)
+    return (f"bus {bus.id}: line results interpolated from {grid.evaluations} engine "
+            f"evaluations over the tolerance box ({axes}); at {pptable.VERIFY} boards "
+            f"drawn in the box they agree with the engine within {grid.max_error:.1e} "
+            "of margin (boards outside the box, or within twice that of failing: evaluated "
+            "by the engine)")

@@ -1,0 +1,473 @@
+"""Tables of the push-pull engine over a bus's tolerance box, for large batches of boards.
+
+A drawn board of an SPI or GPIO bus differs from the design in its rails, its line
+lengths and its extra line capacitance (:mod:`pinlib.buses.ppbatch`).  Each line's
+results (its checks, and the flights it gives the timing budget) depend only on that
+line's own length and capacitance factors and on the rails; the bus's timing checks
+are sums of flights from several lines (:func:`pinlib.buses.spi.budget_terms`).  So:
+
+1. **Nodes.**  The engine evaluates the bus at every node of a grid over the box: one
+   axis for the length factor (every line at the same factor), one for the extra
+   capacitance factor, one per toleranced rail.  One evaluation gives every line's
+   results at that node, since no line depends on another's factors.
+2. **Lines.**  A board's line quantities (check margins, values and limits, flights)
+   are interpolated multilinearly at that line's own factors.
+3. **Bus.**  The timing checks are computed from the interpolated flights by the
+   engine's own budget (``budget_terms``, which takes arrays) and the margin rule of
+   :func:`pinlib.result.check_min`; statuses come from the margins by the engine's
+   rule (:func:`pinlib.result.status_codes`).
+4. **Verification.**  The table is refused (the caller then runs the engine on every
+   board) when the nodes do not all give the same checks, when a check's status does
+   not follow from its margin, or when, at :data:`VERIFY` boards drawn inside the box,
+   a margin interpolated from the table differs from the engine's by more than
+   :data:`MARGIN_TOL`.  The largest difference found is reported, and the caller runs
+   the engine on every board with an interpolated margin within twice that difference
+   of failing, so that no board's pass or fail rests on the interpolation alone.
+
+A board outside the box (a normal draw beyond the span the table covers) is left to the
+caller, which evaluates it with the engine.
+"""
+
+from __future__ import annotations
+
+import itertools
+import math
+from dataclasses import dataclass, replace
+
+import numpy as np
+
+from pinlib.buses import ppbatch as ppb
+from pinlib.buses import pushpull as pp
+from pinlib.buses.pushline import Flight
+from pinlib.design import Bus, Design
+from pinlib.result import STATUS_CODES, min_margin, status_codes
+
+__all__ = ["MARGIN_TOL", "VERIFY", "Axis", "LineTable", "axes_of", "tabulate"]
+
+#: Largest difference between an interpolated and an engine margin the table accepts
+#: (margins are fractions of their limit: 0.1 % of the limit).
+MARGIN_TOL = 1e-3
+#: Boards drawn inside the box (fixed seed) at which the table is checked against the engine.
+VERIFY = 12
+#: Nodes per axis, by kind: the length axis moves delays and reflections the most.
+NODES = {"length": 7, "capacitance": 3, "supply": 3}
+#: More engine evaluations than this and the table is not built.
+MAX_NODES = 400
+
+
+@dataclass(frozen=True)
+class Axis:
+    """One axis of the table: the factor keys it sets and the span it covers.
+
+    ``kind`` is ``"length"``, ``"capacitance"`` or ``"supply"``; a length or
+    capacitance axis sets the key of every line at once (``keys``), a supply axis one
+    rail.
+    """
+
+    kind: str
+    keys: tuple
+    lo: float
+    hi: float
+
+    def nodes(self) -> np.ndarray:
+        return np.linspace(self.lo, self.hi, NODES[self.kind])
+
+
+def axes_of(specs: list[tuple], span: float, floor: float) -> list[Axis]:
+    """The axes of a bus's table from :func:`pinlib.buses.ppbatch.parameter_specs`.
+
+    Parameters
+    ----------
+    specs : list of tuple
+        ``(name, kind, nominal, tolerance, unit, key)`` of each varied quantity. [1]
+    span : float
+        Tolerances covered: 1 for uniform draws, more for normal ones (3σ is 1). [1]
+    floor : float
+        The smallest factor a draw may take. [1]
+    """
+    groups: dict[tuple, list] = {}
+    for _, kind, _, tol, _, key in specs:
+        group = (kind, tol) if kind in ("length", "capacitance") else (kind, key)
+        groups.setdefault(group, []).append((key, tol))
+    out = []
+    for (kind, _), members in groups.items():
+        tol = members[0][1]
+        lo, hi = max(1.0 - span * tol, floor), 1.0 + span * tol
+        out.append(Axis(kind, tuple(k for k, _ in members), lo, hi))
+    return out
+
+
+def _line_of_key(key) -> str | None:
+    return key[2] if key[0] in ("line-length", "line-extra") else None
+
+
+@dataclass
+class LineTable:
+    """The engine's results over a bus's tolerance box.
+
+    Attributes
+    ----------
+    axes : list of Axis
+        The grid's axes. [1]
+    names : list of dict
+        The checks of a varied board, as :func:`pinlib.buses.ppbatch.check_names`. [1]
+    evaluations : int
+        Engine evaluations made (nodes and verification boards). [1]
+    max_error : float
+        Largest margin difference found at the verification boards. [1]
+    """
+
+    axes: list
+    names: list
+    evaluations: int
+    max_error: float
+    _grids: list
+    _lines: dict          # signal -> (labels, table of shape grid + (labels,))
+    _checks: list         # per check: how to fill it (see _plan)
+    _analysis: object     # the nominal SpiAnalysis (mode, controller, bridges), or None
+    _flight_slots: list   # per peripheral: {field: (signal, label index base)}
+    _warn: float          # the design's warning margin
+
+    def inside(self, factors: dict, n: int) -> np.ndarray:
+        """Which boards lie inside the box (the others are the caller's)."""
+        ok = np.ones(n, dtype=bool)
+        for ax in self.axes:
+            for key in ax.keys:
+                f = factors.get(key)
+                if f is not None:
+                    f = np.asarray(f, dtype=float).reshape(n)
+                    ok &= (f >= ax.lo - 1e-12) & (f <= ax.hi + 1e-12)
+        return ok
+
+    def evaluate(self, factors: dict, n: int, order: list[str] | None = None) -> dict:
+        """Margins, values, limits and statuses of every check at ``n`` boards.
+
+        Parameters
+        ----------
+        factors : dict
+            Factor of each varied key, shape ``(n,)`` each, inside the box. [1]
+        n : int
+            Boards. [1]
+        order : list of str, optional
+            Check names for the columns (a name the table lacks gets a NaN margin and
+            passes); the table's own names by default. [1]
+
+        Returns
+        -------
+        dict
+            ``margin``, ``value``, ``limit`` (float, shape ``(n, checks)``) and
+            ``status`` (int codes of :data:`pinlib.result.STATUS_CODES`).
+        """
+        got = {sig: self._line_values(sig, factors, n) for sig in self._lines}
+        where = {nm["name"]: j for j, nm in enumerate(self.names)}
+        order = [nm["name"] for nm in self.names] if order is None else order
+        m = len(order)
+        # one row per check while filling (contiguous), handed back transposed
+        margin = np.full((m, n), np.nan)
+        value = np.full((m, n), np.nan)
+        limit = np.full((m, n), np.nan)
+        status = np.zeros((m, n), dtype=int)
+        terms = self._terms(got, n) if self._analysis is not None else []
+        by_margin = []
+        for j, name in enumerate(order):
+            if name not in where:
+                continue
+            plan = self._checks[where[name]]
+            kind = plan[0]
+            if kind == "const":
+                _, mg, val, lim, code = plan
+                margin[j], value[j], limit[j], status[j] = mg, val, lim, code
+            elif kind == "line":
+                _, sig, slots, warn, margin_rule, code = plan
+                vals = got[sig]
+                for arr, slot in zip((margin, value, limit), slots, strict=True):
+                    arr[j] = vals[:, slot]
+                if margin_rule:
+                    by_margin.append(j)
+                else:
+                    status[j] = code
+            else:  # a timing term of the budget
+                _, k, period, warn = plan
+                t = terms[k]
+                value[j] = t.a * period + np.asarray(t.b, dtype=float)
+                limit[j] = t.required
+                margin[j] = min_margin(value[j], t.required)
+                by_margin.append(j)
+        if by_margin:
+            rows = np.array(by_margin)
+            status[rows] = status_codes(margin[rows], self._warn)
+        return {"margin": margin.T, "value": value.T, "limit": limit.T, "status": status.T}
+
+    def interpolated(self, order: list[str]) -> np.ndarray:
+        """Which of the checks named in ``order`` have interpolated margins (the others
+        are the engine's own, the same at every node)."""
+        where = {nm["name"]: j for j, nm in enumerate(self.names)}
+        out = np.zeros(len(order), dtype=bool)
+        for i, name in enumerate(order):
+            plan = self._checks[where[name]] if name in where else ("const",)
+            if plan[0] == "term":
+                out[i] = True
+            elif plan[0] == "line":
+                col = self._lines[plan[1]][1][..., plan[2][0]]
+                out[i] = bool(np.ptp(col) > 0) if np.isfinite(col).all() else False
+        return out
+
+    # ---------------------------------------------------------------- internals
+
+    def _coords(self, sig: str, factors: dict, n: int) -> np.ndarray:
+        cols = []
+        for ax, grid in zip(self.axes, self._grids, strict=True):
+            key = next((k for k in ax.keys if _line_of_key(k) in (None, sig)
+                        and (ax.kind == "supply" or _line_of_key(k) == sig)), None)
+            f = factors.get(key) if key is not None else None
+            cols.append(np.full(n, grid[0]) if f is None
+                        else np.asarray(f, dtype=float).reshape(n))
+        return np.stack(cols, axis=1) if cols else np.zeros((n, 0))
+
+    def _line_values(self, sig: str, factors: dict, n: int) -> np.ndarray:
+        _, table = self._lines[sig]
+        return _interpolate(self._grids, table, self._coords(sig, factors, n))
+
+    def _terms(self, got: dict, n: int) -> list:
+        from pinlib.buses.spi import budget_terms
+
+        sa = self._analysis
+        periphs = []
+        for p, slots in zip(sa.peripherals, self._flight_slots, strict=True):
+            def flight(field, p=p, slots=slots):
+                if field not in slots:
+                    return getattr(p, field) if field != "sclk" else p.sclk
+                if field == "sclk":
+                    return {e: Flight(got["sclk"][:, slots["sclk"][e]],
+                                      got["sclk"][:, slots["sclk"][e] + 1])
+                            for e in ("rise", "fall")}
+                sig, base = slots[field]
+                return Flight(got[sig][:, base], got[sig][:, base + 1])
+            periphs.append(replace(p, sclk=flight("sclk"), copi=flight("copi"),
+                                   cs=flight("cs"), cipo=flight("cipo")))
+        return budget_terms(sa.mode, sa.controller, periphs, sa.t_bridge)
+
+
+def _interpolate(grids: list, table: np.ndarray, coords: np.ndarray) -> np.ndarray:
+    """Multilinear interpolation of ``table`` (grid shape + (q,)) at ``coords`` (n, d)."""
+    n = coords.shape[0]
+    if not grids:
+        return np.broadcast_to(table, (n, table.shape[-1])).copy()
+    lower, weight = [], []
+    for i, g in enumerate(grids):
+        k = np.clip(np.searchsorted(g, coords[:, i], side="right") - 1, 0, g.size - 2)
+        lower.append(k)
+        weight.append((coords[:, i] - g[k]) / (g[k + 1] - g[k]))
+    out = np.zeros((n, table.shape[-1]))
+    for corner in itertools.product((0, 1), repeat=len(grids)):
+        w = np.ones(n)
+        index = []
+        for i, b in enumerate(corner):
+            w = w * (weight[i] if b else 1.0 - weight[i])
+            index.append(lower[i] + b)
+        out += w[:, None] * table[tuple(index)]
+    return out
+
+
+def _num(x) -> float:
+    if x is None or isinstance(x, bool):
+        return math.nan
+    try:
+        return float(x)
+    except (TypeError, ValueError):
+        return math.nan
+
+
+def _evaluate(bus: Bus, design: Design):
+    """The engine's result of a (varied) bus, and its SPI analysis (None for GPIO)."""
+    if bus.protocol == "spi":
+        from pinlib.buses.spi import evaluate_spi, spi_analysis
+
+        sa = spi_analysis(bus, design)
+        return evaluate_spi(bus, design, analysis=sa), sa
+    return pp.evaluate_bus(bus, design), None
+
+
+_FIELDS = ("copi", "cs", "cipo")
+
+
+def _record(bus: Bus, res, sa) -> tuple[dict, list]:
+    """Per line, the labelled numbers of one evaluation; and each check's record."""
+    per_line: dict[str, list] = {}
+    checks = []
+    for nm, (sig, c) in zip(ppb.check_names(bus, res), ppb.flat_checks(res), strict=True):
+        checks.append((nm["name"], sig, c))
+        if sig is not None:
+            per_line.setdefault(sig, []).extend(
+                [("check", nm["name"], "margin", _num(c.margin)),
+                 ("check", nm["name"], "value", _num(c.value)),
+                 ("check", nm["name"], "limit", _num(c.limit))])
+    if sa is not None:
+        for i, p in enumerate(sa.peripherals):
+            for e in ("rise", "fall"):
+                f = p.sclk[e]
+                per_line.setdefault("sclk", []).extend(
+                    [("flight", i, f"sclk-{e}", "early", f.early),
+                     ("flight", i, f"sclk-{e}", "late", f.late)])
+            for field in _FIELDS:
+                f = getattr(p, field)
+                if f is not None:
+                    per_line.setdefault(field, []).extend(
+                        [("flight", i, field, "early", f.early),
+                         ("flight", i, field, "late", f.late)])
+    return per_line, checks
+
+
+def tabulate(bus: Bus, design: Design, axes: list[Axis],
+             resistors: dict) -> LineTable | str:
+    """Build and verify the table of a push-pull bus, or say why it cannot stand in for
+    the engine (see the module notes).
+
+    Parameters
+    ----------
+    bus : Bus
+        An ``spi`` or ``gpio`` bus of ``design``. [1]
+    design : Design
+        The design. [1]
+    axes : list of Axis
+        From :func:`axes_of`. [1]
+    resistors : dict
+        Series resistors fixed for "auto" lines (``ppbatch.chosen_resistors``). [Ω]
+    """
+    grids = [ax.nodes() for ax in axes]
+    shape = tuple(g.size for g in grids)
+    if int(np.prod(shape, dtype=float)) > MAX_NODES:
+        return f"{int(np.prod(shape, dtype=float))} nodes, more than {MAX_NODES}"
+    names: list | None = None
+    order: list | None = None
+    labels: dict[str, list] | None = None
+    values: dict[str, np.ndarray] = {}
+    node_checks = []
+    first_sa = None
+    for index in itertools.product(*(range(s) for s in shape)):
+        factor = {}
+        for ax, g, i in zip(axes, grids, index, strict=True):
+            for key in ax.keys:
+                factor[key] = float(g[i])
+        res, sa = _evaluate(ppb.vary_bus(bus, factor.get, resistors), design)
+        per_line, checks = _record(bus, res, sa)
+        if order is None:  # the first node names the checks (a varied board has no
+            names = ppb.check_names(bus, res)  # "auto" left: no series-termination check)
+            order = [nm["name"] for nm in names]
+        if [c[0] for c in checks] != order:
+            return "the checks differ across the tolerance box"
+        here = {sig: [item[:-1] for item in items] for sig, items in per_line.items()}
+        if labels is None:
+            labels = here
+            values = {sig: np.empty(shape + (len(items),)) for sig, items in here.items()}
+            first_sa = sa
+        elif here != labels:
+            return "the lines' flights differ across the tolerance box"
+        for sig, items in per_line.items():
+            values[sig][index] = [item[-1] for item in items]
+        node_checks.append(checks)
+    plans = _plan(names, node_checks, labels or {}, values, first_sa, bus, design)
+    if isinstance(plans, str):
+        return plans
+    slots = _flight_slots(first_sa, labels or {})
+    table = LineTable(axes, names, len(node_checks), 0.0, grids,
+                      {sig: (labels[sig], values[sig]) for sig in (labels or {})},
+                      plans, first_sa, slots, design.warn_margin)
+    return _verify(table, bus, design, resistors)
+
+
+def _plan(names, node_checks, labels, values, sa, bus, design) -> list | str:
+    """How each check is filled: a constant, a line's interpolated numbers, or a term."""
+    warn = design.warn_margin
+    plans = []
+    term_k = 0
+    n_terms = len(sa.terms) if sa is not None else 0
+    for j, nm in enumerate(names):
+        at_nodes = [checks[j][2] for checks in node_checks]
+        sig = node_checks[0][j][1]
+        codes = {STATUS_CODES[c.status] for c in at_nodes}
+        mgs = np.array([_num(c.margin) for c in at_nodes])
+        c0 = at_nodes[0]
+        if sig is None:
+            is_term = c0.id in ("copi-setup", "copi-hold", "cipo-setup", "cipo-hold",
+                                "cs-setup") and term_k < n_terms
+            if is_term:
+                if sa.terms[term_k].id != c0.id:
+                    return f"{nm['name']}: not the budget term expected there"
+                plans.append(("term", term_k, 1.0 / float(bus.clock), warn))
+                term_k += 1
+                continue
+            if len(codes) != 1 or len({_num(c.value) for c in at_nodes}) > 1:
+                return f"{nm['name']}: a bus check that moves and is not a timing term"
+            plans.append(("const", _num(c0.margin), _num(c0.value), _num(c0.limit),
+                          codes.pop()))
+            continue
+        base = labels[sig].index(("check", nm["name"], "margin"))
+        slots = []
+        for off in range(3):
+            col = values[sig][..., base + off]
+            finite = np.isfinite(col)
+            if finite.all():
+                slots.append(base + off)
+            elif len(np.unique(col)) == 1 or np.isnan(col).all():
+                slots.append(base + off)   # a constant (inf or NaN) interpolates to itself
+            else:
+                return f"{nm['name']}: not finite at every node"
+        has_margin = c0.margin is not None
+        by_margin = has_margin and all(STATUS_CODES[c.status] == int(status_codes(
+            np.array([_num(c.margin)]), warn)[0]) for c in at_nodes)
+        if not by_margin and len(codes) != 1:
+            return f"{nm['name']}: its status moves, but not with its margin"
+        if has_margin and not np.isfinite(mgs).all() and len(np.unique(mgs)) != 1:
+            return f"{nm['name']}: a margin not finite at every node"
+        plans.append(("line", sig, tuple(slots), warn, by_margin, min(codes)))
+    if term_k != n_terms:
+        return "the budget's terms are not all checks"
+    return plans
+
+
+def _flight_slots(sa, labels) -> list:
+    if sa is None:
+        return []
+    out = []
+    for i, p in enumerate(sa.peripherals):
+        slots = {}
+        if "sclk" in labels and ("flight", i, "sclk-rise", "early") in labels["sclk"]:
+            slots["sclk"] = {e: labels["sclk"].index(("flight", i, f"sclk-{e}", "early"))
+                             for e in ("rise", "fall")}
+        for field in _FIELDS:
+            if field in labels and ("flight", i, field, "early") in labels[field]:
+                slots[field] = (field, labels[field].index(("flight", i, field, "early")))
+        out.append(slots)
+    return out
+
+
+def _verify(table: LineTable, bus: Bus, design: Design, resistors: dict) -> LineTable | str:
+    """Check the table at VERIFY boards drawn in the box (fixed seed) against the engine."""
+    rng = np.random.default_rng(20261201)
+    keys = [k for ax in table.axes for k in ax.keys]
+    span = {k: (ax.lo, ax.hi) for ax in table.axes for k in ax.keys}
+    draws = {k: rng.uniform(*span[k], VERIFY) for k in keys}
+    got = table.evaluate(draws, VERIFY)
+    worst = 0.0
+    for b in range(VERIFY):
+        res, _ = _evaluate(ppb.vary_bus(bus, {k: float(v[b]) for k, v in draws.items()}.get,
+                                        resistors), design)
+        engine = [c for _, c in ppb.flat_checks(res)]
+        if [nm["name"] for nm in ppb.check_names(bus, res)] != [nm["name"] for nm in table.names]:
+            return "a verification board has other checks"
+        for j, c in enumerate(engine):
+            if c.margin is None:
+                if STATUS_CODES[c.status] != got["status"][b, j]:
+                    return f"{table.names[j]['name']}: another status at a verification board"
+                continue
+            mine, theirs = got["margin"][b, j], _num(c.margin)
+            if math.isfinite(theirs) or math.isfinite(mine):
+                diff = abs(mine - theirs)
+                if not diff <= MARGIN_TOL:
+                    return (f"{table.names[j]['name']}: interpolated margin {mine:.4g} against "
+                            f"the engine's {theirs:.4g} at a verification board")
+                worst = max(worst, diff)
+    table.evaluations += VERIFY
+    table.max_error = worst
+    return table

@@ -1,0 +1,193 @@
+"""Tables of the push-pull engine over a tolerance box (pinlib.buses.pptable).
+
+The reference here is the push-pull engine itself: a table only stands in for it, so
+every board the table evaluates is compared with the engine's own evaluation of the
+same board.  The test design (tests/data/long-spi-link.toml, an invented scenario) has
+a CIPO setup margin close to zero, so that the drawn boards fall on both sides of the
+limit.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import replace
+from pathlib import Path
+
+import numpy as np
+import pytest
+from hypothesis import given
+from hypothesis import strategies as st
+
+from pinlib.buses import ppbatch as ppb
+from pinlib.buses import pptable
+from pinlib.buses.pushpull import evaluate_bus
+from pinlib.design import load_design
+from pinlib.result import STATUS_CODES, _status, check_min, min_margin, status_codes
+
+DATA = Path(__file__).parent / "data"
+DEMO = Path(__file__).resolve().parents[1] / "workbooks" / "designs" / "demo-board.toml"
+
+pytestmark = pytest.mark.filterwarnings("ignore::pinlib.physics.driver.FitWarning",
+                                        "ignore::pinlib.physics.lines.ValidityWarning")
+
+
+@pytest.fixture(scope="module")
+def link():
+    design = load_design(DATA / "long-spi-link.toml")
+    return design, design.buses[0]
+
+
+def _factors(bus, n, seed):
+    rng = np.random.default_rng(seed)
+    return {spec[-1]: 1.0 + spec[3] * rng.uniform(-1.0, 1.0, n)
+            for spec in ppb.parameter_specs(bus)}
+
+
+@pytest.fixture(scope="module")
+def both(link):
+    design, bus = link
+    n = 60
+    factors = _factors(bus, n, seed=7)
+    nominal = evaluate_bus(bus, design)
+    tables: dict = {}
+    by_table = ppb.build(bus, design, factors, n, nominal=nominal, tables=tables)
+    by_engine = ppb.build(bus, design, factors, n, nominal=nominal)
+    return by_table, by_engine, tables[bus.id], n
+
+
+def test_the_table_is_built_and_says_how_well_it_agrees(both, link):
+    by_table, by_engine, table, n = both
+    assert isinstance(table, pptable.LineTable)
+    assert table.max_error <= pptable.MARGIN_TOL
+    assert any("interpolated from" in note for note in by_table.notes)
+    assert not by_engine.notes
+    assert by_engine.engine_boards == n and by_table.engine_boards < n
+    # a length axis and one rail: NODES of each, and the verification boards
+    kinds = sorted(ax.kind for ax in table.axes)
+    assert kinds == ["length", "supply"]
+    assert table.evaluations == (pptable.NODES["length"] * pptable.NODES["supply"]
+                                 + pptable.VERIFY)
+
+
+def test_every_board_passes_or_fails_as_the_engine_says(both):
+    by_table, by_engine, table, n = both
+    cipo = [i for i, nm in enumerate(by_engine.names) if nm["name"].startswith("link cipo-setup")]
+    assert cipo
+    fails = by_engine.items[cipo[0]].status == STATUS_CODES["fail"]
+    assert 0 < fails.sum() < n  # the draw straddles the limit, so the test can fail
+    for a, b in zip(by_table.items, by_engine.items, strict=True):
+        assert a.id == b.id
+        np.testing.assert_array_equal(a.status == 2, b.status == 2)
+        if b.margin is not None:
+            ok = np.isfinite(b.margin)
+            np.testing.assert_allclose(a.margin[ok], b.margin[ok], rtol=0,
+                                       atol=pptable.MARGIN_TOL)
+            np.testing.assert_array_equal(np.isfinite(a.margin), ok)
+
+
+def test_a_table_that_disagrees_with_the_engine_is_refused(link, monkeypatch):
+    design, bus = link
+    monkeypatch.setattr(pptable, "MARGIN_TOL", 0.0)
+    axes = pptable.axes_of(ppb.parameter_specs(bus), 1.0, 1e-6)
+    chosen = ppb.chosen_resistors(evaluate_bus(bus, design))
+    got = pptable.tabulate(bus, design, axes, chosen)
+    assert isinstance(got, str) and "interpolated margin" in got
+
+
+def test_a_refused_table_leaves_every_board_to_the_engine(link):
+    design, bus = link
+    n = 50
+    factors = _factors(bus, n, seed=3)
+    tables = {bus.id: "refused for this test"}
+    got = ppb.build(bus, design, factors, n, tables=tables)
+    assert got.engine_boards == n
+    assert any("refused for this test" in note for note in got.notes)
+
+
+def test_a_small_batch_goes_to_the_engine_without_a_table(link):
+    design, bus = link
+    tables: dict = {}
+    got = ppb.build(bus, design, _factors(bus, 4, seed=1), 4, tables=tables)
+    assert got.engine_boards == 4 and bus.id not in tables
+
+
+def test_axes_group_line_factors_and_keep_rails_apart():
+    specs = [("a", "supply", 3.3, 0.05, "V", ("rail", 3.3, 0.05)),
+             ("b", "supply", 1.8, 0.05, "V", ("rail", 1.8, 0.05)),
+             ("c", "length", 0.1, 0.1, "m", ("line-length", "x", "sclk")),
+             ("d", "length", 0.1, 0.1, "m", ("line-length", "x", "copi")),
+             ("e", "capacitance", 1.0, 0.2, "", ("line-extra", "x", "copi"))]
+    axes = pptable.axes_of(specs, 4.0 / 3.0, 1e-6)
+    kinds = [ax.kind for ax in axes]
+    assert kinds.count("supply") == 2 and kinds.count("length") == 1
+    length = next(ax for ax in axes if ax.kind == "length")
+    assert set(length.keys) == {("line-length", "x", "sclk"), ("line-length", "x", "copi")}
+    # a normal draw is covered to 4 sigma: 4/3 of a tolerance at 3 sigma
+    assert length.lo == pytest.approx(1 - 0.1 * 4 / 3) and length.hi == pytest.approx(1 + 0.1 * 4 / 3)
+    cap = next(ax for ax in axes if ax.kind == "capacitance")
+    assert cap.lo == pytest.approx(1 - 0.2 * 4 / 3)
+
+
+def test_multilinear_interpolation_is_exact_on_a_bilinear_function():
+    # f(x, y) = 1 + 2x - 3y + 0.5xy is reproduced exactly by multilinear interpolation
+    # (common practice, no source: the interpolant is bilinear on each cell)
+    gx, gy = np.linspace(0.9, 1.1, 5), np.linspace(0.95, 1.05, 3)
+    x, y = np.meshgrid(gx, gy, indexing="ij")
+    table = (1 + 2 * x - 3 * y + 0.5 * x * y)[..., None]
+    rng = np.random.default_rng(0)
+    pts = np.stack([rng.uniform(0.9, 1.1, 200), rng.uniform(0.95, 1.05, 200)], axis=1)
+    got = pptable._interpolate([gx, gy], table, pts)[:, 0]
+    want = 1 + 2 * pts[:, 0] - 3 * pts[:, 1] + 0.5 * pts[:, 0] * pts[:, 1]
+    np.testing.assert_allclose(got, want, rtol=1e-12)
+
+
+def test_monte_carlo_of_an_spi_bus_reports_its_table(link):
+    from pinlib.whatif import monte_carlo
+
+    design, bus = link
+    result = monte_carlo(design, 80, seed=5)
+    assert any("interpolated from" in note for note in result.notes)
+
+
+def test_auto_series_resistors_stay_as_chosen_on_the_nominal_board():
+    design = load_design(DEMO)
+    bus = design.bus("display")
+    nominal = evaluate_bus(bus, design)
+    chosen = ppb.chosen_resistors(nominal)
+    assert chosen  # the display's auto lines
+    varied = ppb.vary_bus(bus, lambda key: None, chosen)
+    for sig, rs in chosen.items():
+        assert bus.lines[sig].series_resistor == "auto"
+        assert varied.lines[sig].series_resistor == (rs if rs > 0 else "none")
+    one = next(iter(chosen))
+    zero = ppb.vary_bus(bus, lambda key: None, {one: 0.0})
+    assert zero.lines[one].series_resistor == "none"
+
+
+@given(value=st.floats(allow_nan=True, allow_infinity=True, width=64),
+       limit=st.floats(allow_nan=False, allow_infinity=False, min_value=-1e9, max_value=1e9),
+       warn=st.floats(0.0, 0.5))
+def test_array_margins_and_statuses_follow_the_scalar_rules(value, limit, warn):
+    if math.isnan(value):
+        return  # check_min takes float(value): NaN values are not checks
+    c = check_min("x", value, limit, "s", "", "", warn_margin=warn)
+    m = float(min_margin(np.array([value]), limit)[0])
+    assert (m == c.margin) or (math.isnan(m) and math.isnan(c.margin))
+    assert int(status_codes(np.array([m]), warn)[0]) == STATUS_CODES[_status(m, warn)]
+    assert STATUS_CODES[c.status] == int(status_codes(np.array([c.margin]), warn)[0])
+
+
+def test_replace_keeps_frozen_timing_records_usable_with_arrays(link):
+    # budget_terms takes flights as arrays: one term per peripheral, arrays of margins
+    from pinlib.buses.pushline import Flight
+    from pinlib.buses.spi import budget_terms, spi_analysis
+
+    design, bus = link
+    sa = spi_analysis(bus, design)
+    p = sa.peripherals[0]
+    shifted = replace(p, cipo=Flight(np.array([p.cipo.early, p.cipo.early + 1e-9]),
+                                     np.array([p.cipo.late, p.cipo.late + 1e-9])))
+    terms = budget_terms(sa.mode, sa.controller, [shifted], sa.t_bridge)
+    setup = next(t for t in terms if t.id == "cipo-setup")
+    # a CIPO flight 1 ns later leaves 1 ns less setup time (derived from the budget)
+    assert setup.b[0] - setup.b[1] == pytest.approx(1e-9, rel=1e-9)
