@@ -58,6 +58,7 @@ __all__ = [
     "part_values",
     "value_label",
     "can_serve",
+    "swap_refusals",
     "swapped_text",
     "FigureRow",
     "StatusChange",
@@ -909,6 +910,51 @@ def _scl_drivers_elsewhere(device, bus) -> list[str]:
         if got is not None and got[1].drive != "input":
             out.append(d.ref)
     return sorted(set(out))
+
+
+def swap_refusals(design, ref: str, part_id: str, *, field: str = "REF=PART") -> tuple[str, list]:
+    """Why ``part_id`` cannot take the place of the part at ``ref`` in ``design``.
+
+    Parameters
+    ----------
+    design : Design
+        A loaded design. [1]
+    ref : str
+        The reference designator to substitute. [1]
+    part_id : str
+        The proposed part class. [1]
+    field : str, optional
+        The field an error names (``REF=PART`` on the command line). [1]
+
+    Returns
+    -------
+    (str, list of str)
+        The part at ``ref`` now, and the reasons (empty when the swap can be made):
+        an abstract or cable class, then :func:`can_serve` on every bus it sits on.
+
+    Raises
+    ------
+    DesignError
+        No device has that reference; LibraryError: no such part.
+    """
+    from pinlib.errors import DesignError
+
+    places = [(b, d) for b in design.buses for d in b.devices if d.ref == ref]
+    if not places:
+        refs = sorted({d.ref for b in design.buses for d in b.devices})
+        raise DesignError(M.NO_SUCH_REFERENCE, file=str(design.path) if design.path else None,
+                          field=field, value=ref, hint="devices: " + ", ".join(refs))
+    new_part = design.library.get(part_id, field=field)
+    if new_part.abstract:
+        return places[0][1].part_id, [M.ABSTRACT_NOT_PLACED.format(part=part_id)]
+    if new_part.category == "cable":
+        return places[0][1].part_id, [M.CABLE_NOT_PLACED.format(part=part_id)]
+    reasons: list[str] = []
+    for bus, dev in places:
+        for reason in can_serve(dev.part, new_part, dev, bus):
+            if reason not in reasons:
+                reasons.append(reason)
+    return places[0][1].part_id, reasons
 
 
 def can_serve(old_part: Part, new_part: Part, device, bus) -> list[str]:

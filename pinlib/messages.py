@@ -8,15 +8,15 @@ A constant with ``{placeholders}`` is a template, filled with ``str.format``::
     raise DesignError(messages.BUS_HAS_NO_MODE.format(protocol="spi"), ...)
 
 The other constants are the texts of pinlib's warnings (the ``ValidityWarning`` of
-``pinlib/physics/lines.py``, the ``FitWarning`` of ``pinlib/physics/driver.py``) and the
-sentences that the design-review report (``pinlib/review.py``) prints where a chart
-could not be drawn, no sampled check varies, or there is no snapshot to compare with.
+``pinlib/physics/lines.py`` and of ``pinlib/physics/waveform.py``, the ``FitWarning`` of
+``pinlib/physics/driver.py``) and the sentences that the design-review report
+(``pinlib/review.py``) prints where a chart could not be drawn, no sampled check varies,
+or there is no snapshot to compare with.
 
 ``tests/test_messages.py`` triggers each of them once and checks the text.
 
-Not converted yet: the warning of ``pinlib/physics/waveform.py`` that a line section's
-delay was rounded to whole time steps (a ``ValidityWarning`` with a text of its own),
-which is being converted separately.  Texts that pydantic writes itself for a value of
+Notes (what an engine assumed, how a batch was evaluated) are not problems and stay
+beside the code that writes them.  Texts that pydantic writes itself for a value of
 the wrong type (``Input should be a valid string``) are passed through in pydantic's
 words.  Two ``ValueError`` texts of the converted modules are not here because no file
 or command line reaches them, only a program calling pinlib wrongly: ``parse`` with an
@@ -145,6 +145,11 @@ SUBSTITUTION_FORM = "a substitution is REF=PART"
 SUBSTITUTED_TWICE = "one reference substituted twice"
 DESIGN_CHANGED_DURING_SWAP = ("the design file changed while it was being evaluated; "
                               "nothing written")
+# pinlib swap and the swap workbook: a refused substitution (the reasons follow, one a line)
+SWAP_REFUSED = "{ref} = {new} refused: {new} cannot serve the position of {old}"
+ABSTRACT_NOT_PLACED = "{part} is an abstract class, meant to be extended, not placed"
+CABLE_NOT_PLACED = "{part} is a cable class; it belongs in cables or a line's sections"
+DESIGN_NOT_CHANGED = "{path} was not changed"
 
 # ---------------------------------------------------------------- engines: plain numbers
 # shared by pinlib/standards/*, pinlib/eseries.py and pinlib/physics/*
@@ -188,6 +193,9 @@ VIH_NOT_ABOVE_VIL = "VIH must be above VIL"
 NEGATIVE_SOURCE_OR_LOAD = "source resistance and load capacitance must not be negative"
 TIME_GRID_FORM = "time grid must be 1-D, start at 0 and hold at least two samples"
 TIME_GRID_NOT_UNIFORM = "time grid must be uniform and increasing"
+# a ValidityWarning, not an error
+DELAY_ROUNDED = ("sections[{k}].td = {td} s rounded to {steps} steps of {dt} s ({rounded} s); "
+                 "use a time step that divides the delay")
 SECTION_NOT_A_PAIR = "a line section must be a pair (z0, td)"
 Z0_NOT_POSITIVE = "characteristic impedance must be positive"
 SECTION_DELAY_FORM = "section delay must be one number >= 0"

@@ -1855,23 +1855,9 @@ class SwapExplorer(_Panel):
 
     def refusals(self, ref: str, part_id: str) -> list[str]:
         """Why ``part_id`` cannot stand in ``ref``'s position (empty: it can)."""
-        from pinlib.compare import can_serve
+        from pinlib.compare import swap_refusals
 
-        places = self._places(ref)
-        if not places:
-            raise InputError(M.NO_SUCH_REFERENCE, field="ref", value=ref,
-                             expected=", ".join(v for _, v in self.ref.options))
-        part = self.design.library.get(part_id, field="part")
-        if part.abstract:
-            return [f"{part_id} is an abstract class, meant to be extended, not placed"]
-        if part.category == "cable":
-            return [f"{part_id} is a cable class; it belongs in cables or a line's sections"]
-        out: list[str] = []
-        for bus, dev in places:
-            for reason in can_serve(dev.part, part, dev, bus):
-                if reason not in out:
-                    out.append(reason)
-        return out
+        return swap_refusals(self.design, ref, part_id, field="ref")[1]
 
     def _ref_changed(self, change=None) -> None:
         ref = self.ref.value
@@ -1893,7 +1879,9 @@ class SwapExplorer(_Panel):
         self.refused = reasons
         if reasons:
             self.refused_html.value = (f'<div style="color:{charts.FAIL};font-size:12px">'
-                                       f"{_e(part_id)} cannot stand at {_e(ref)}:<ul>"
+                                       + _e(M.SWAP_REFUSED.format(
+                                           ref=ref, new=part_id,
+                                           old=self._places(ref)[0][1].part_id)) + ":<ul>"
                                        + "".join(f"<li>{_e(r)}</li>" for r in reasons)
                                        + "</ul></div>")
             return reasons

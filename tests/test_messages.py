@@ -621,6 +621,31 @@ def _(env):
     return _fails(lambda e: e.design(I2C_BUS, swaps={"U99": "eeprom-i2c"}), env)
 
 
+@case("SWAP_REFUSED", M.SWAP_REFUSED.format(ref="U2", new="nor-flash-spi", old="eeprom-i2c"))
+def _(env):
+    path = env.write("design.toml", HEAD + I2C_BUS)
+    return env.cli("swap", str(path), "U2=nor-flash-spi")
+
+
+@case("DESIGN_NOT_CHANGED", lambda: M.DESIGN_NOT_CHANGED.format(path="design.toml"))
+def _(env):
+    env.write("design.toml", HEAD + I2C_BUS)
+    env.monkeypatch.chdir(env.tmp)
+    return env.cli("swap", "design.toml", "U2=nor-flash-spi", "--write")
+
+
+@case("ABSTRACT_NOT_PLACED", M.ABSTRACT_NOT_PLACED.format(part="i2c-peripheral"))
+def _(env):
+    path = env.write("design.toml", HEAD + I2C_BUS)
+    return env.cli("swap", str(path), "U2=i2c-peripheral")
+
+
+@case("CABLE_NOT_PLACED", M.CABLE_NOT_PLACED.format(part="ribbon-cable"))
+def _(env):
+    path = env.write("design.toml", HEAD + I2C_BUS)
+    return env.cli("swap", str(path), "U2=ribbon-cable")
+
+
 @case("OPEN_DRAIN_NO_LINES")
 def _(env):
     lines = 'lines.sclk = { length = "3 cm", geometry = "g" }\n'
@@ -1083,6 +1108,20 @@ def _(env):
     from pinlib.physics.lines import microstrip
     with pytest.warns(ValidityWarning) as caught:
         microstrip(0.2e-3, 0.18e-3, 200.0)
+    return str(caught[0].message)
+
+
+# derived: a 1.3 ns section on a 1 ns grid rounds to 1 step (23 % off, over the 5 % the
+# solver tolerates before it warns)
+@case("DELAY_ROUNDED", M.DELAY_ROUNDED.format(k=0, td="1.3e-09", steps=1, dt="1e-09",
+                                              rounded="1e-09"))
+def _(env):
+    import numpy as np
+
+    from pinlib.errors import ValidityWarning
+    from pinlib.physics.waveform import distributed_response
+    with pytest.warns(ValidityWarning) as caught:
+        distributed_response(np.arange(40) * 1e-9, 3.3, 1e-9, 50.0, [(50.0, 1.3e-9)], 5e-12)
     return str(caught[0].message)
 
 

@@ -511,7 +511,7 @@ def test_swap_refused_with_the_reason(explorer):
     explorer.reset()
     reasons = explorer.apply_swap("U4", "nor-flash-spi")
     assert reasons and any("i2c-sda" in r for r in reasons)
-    assert explorer.swaps == {} and "cannot stand at U4" in explorer.refused_html.value
+    assert explorer.swaps == {} and "U4 = nor-flash-spi refused" in explorer.refused_html.value
     offered = [v for _, v in explorer.new_part.options] if explorer.ref.value == "U4" else []
     assert "nor-flash-spi" not in offered
 

@@ -97,32 +97,13 @@ def parse_assignments(items) -> dict[str, str]:
 
 def _refusals(design, swaps: dict[str, str]) -> list[dict]:
     """Each substitution's reasons for refusal (empty list: all can serve)."""
-    from pinlib.compare import can_serve
-    from pinlib.errors import DesignError
+    from pinlib.compare import swap_refusals
 
     refused = []
-    refs = sorted({d.ref for b in design.buses for d in b.devices})
     for ref, part_id in swaps.items():
-        places = [(b, d) for b in design.buses for d in b.devices if d.ref == ref]
-        if not places:
-            raise DesignError(M.NO_SUCH_REFERENCE, file=str(design.path),
-                              field="REF=PART", value=ref,
-                              hint="devices: " + ", ".join(refs))
-        new_part = design.library.get(part_id, field="REF=PART")
-        reasons: list[str] = []
-        if new_part.abstract:
-            reasons.append(f"{part_id} is an abstract class, meant to be extended, not placed")
-        elif new_part.category == "cable":
-            reasons.append(f"{part_id} is a cable class; it belongs in cables or a line's "
-                           "sections")
-        else:
-            for bus, dev in places:
-                for reason in can_serve(dev.part, new_part, dev, bus):
-                    if reason not in reasons:
-                        reasons.append(reason)
+        old, reasons = swap_refusals(design, ref, part_id)
         if reasons:
-            refused.append({"ref": ref, "old": places[0][1].part_id, "new": part_id,
-                            "reasons": reasons})
+            refused.append({"ref": ref, "old": old, "new": part_id, "reasons": reasons})
     return refused
 
 
@@ -170,11 +151,12 @@ def run(args) -> int:
     refused = _refusals(design, swaps)
     if refused:
         for r in refused:
-            print(f"pinlib: error: {r['ref']} = {r['new']} refused: {r['new']} cannot serve "
-                  f"the position of {r['old']}:", file=sys.stderr)
+            print("pinlib: error: " + M.SWAP_REFUSED.format(ref=r["ref"], new=r["new"],
+                                                            old=r["old"]) + ":",
+                  file=sys.stderr)
             for reason in r["reasons"]:
                 print(f"  - {reason}", file=sys.stderr)
-        print(f"pinlib: {args.design} was not changed", file=sys.stderr)
+        print("pinlib: " + M.DESIGN_NOT_CHANGED.format(path=args.design), file=sys.stderr)
         if args.json:
             json.dump({"format": "pinlib.swap/1", "design": design.title,
                        "path": str(design.path), "refused": refused, "written": False},

@@ -559,10 +559,9 @@ def distributed_response(t, vdd, t_ramp, r_source, sections, c_load, c_mid=None,
                              field=f"sections[{k}].td", value=td,
                              expected=f"td >= dt/2 = {dt / 2:.3g} s (or a finer grid)")
         if td > 0.0 and abs(steps * dt - td) > _DELAY_ROUNDING_WARN * td:
-            warnings.warn(
-                f"sections[{k}].td = {td:.4g} s rounded to {steps} steps of {dt:.4g} s "
-                f"({steps * dt:.4g} s); use a time step that divides the delay",
-                ValidityWarning, stacklevel=2)
+            warnings.warn(M.DELAY_ROUNDED.format(k=k, td=f"{td:.4g}", steps=steps,
+                                                 dt=f"{dt:.4g}", rounded=f"{steps * dt:.4g}"),
+                          ValidityWarning, stacklevel=2)
         keep.append(steps > 0)
         if steps > 0:
             z_list.append(z0)
