@@ -621,6 +621,14 @@ def _(env):
     return _fails(lambda e: e.design(I2C_BUS, swaps={"U99": "eeprom-i2c"}), env)
 
 
+@case("LIBRARY_HAS_PROBLEMS", M.LIBRARY_HAS_PROBLEMS.format(n=1))
+def _(env):
+    env.team("p")
+    env.write("team/broken.toml", "this is not TOML\n")
+    assert main(["parts", "list", "--library", str(env.tmp / "team")]) == 0
+    return env.capsys.readouterr().err
+
+
 @case("SWAP_REFUSED", M.SWAP_REFUSED.format(ref="U2", new="nor-flash-spi", old="eeprom-i2c"))
 def _(env):
     path = env.write("design.toml", HEAD + I2C_BUS)

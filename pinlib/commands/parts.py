@@ -164,9 +164,8 @@ def _load(args, extra=()):
 
 def _warn_problems(lib) -> None:
     if lib.problems:
-        n = len(lib.problems)
-        print(f"pinlib: warning: {n} problem{'s' if n != 1 else ''} in the library "
-              "(run 'pinlib parts check'); parts with problems are left out", file=sys.stderr)
+        print("pinlib: warning: " + M.LIBRARY_HAS_PROBLEMS.format(n=len(lib.problems)),
+              file=sys.stderr)
 
 
 def _closest(word, choices) -> str | None:

@@ -169,5 +169,6 @@ def run(args) -> int:
     print(f"wrote {written[0]}{extra} ({drawn} charts; design {result.status})",
           file=sys.stderr)
     for c in missing:
-        print(f"pinlib: note: chart not drawn: {c.title}: {c.error}", file=sys.stderr)
+        print("pinlib: note: " + M.CHART_NOT_DRAWN_WITH_TITLE.format(title=c.title, error=c.error),
+              file=sys.stderr)
     return result.exit_code()
