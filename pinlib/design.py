@@ -243,6 +243,7 @@ class Device:
     pin: str | None = None
     capacitance_tolerance: float | None = None
     loc: tuple = ()                   # its place in the file, for messages
+    capacitance_factor: float = 1.0   # a drawn board's pin capacitance over the stored one
 
     @property
     def is_controller(self) -> bool:

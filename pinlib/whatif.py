@@ -619,10 +619,6 @@ def _fmt_margin(m) -> str:
 def _not_sampled(design: Design, what: str = "not sampled") -> list[str]:
     notes = [f"bus {b.id} ({b.protocol}): {what}"
              for b in design.buses if b.protocol not in _OPEN_DRAIN + ppb.PROTOCOLS]
-    for b in design.buses:
-        if b.protocol in ppb.PROTOCOLS and any(d.capacitance_tolerance for d in b.devices):
-            notes.append(f"bus {b.id} ({b.protocol}): device pin capacitance tolerances are "
-                         "not drawn (the pins keep their stored values)")
     return notes
 
 

@@ -191,3 +191,23 @@ def test_replace_keeps_frozen_timing_records_usable_with_arrays(link):
     setup = next(t for t in terms if t.id == "cipo-setup")
     # a CIPO flight 1 ns later leaves 1 ns less setup time (derived from the budget)
     assert setup.b[0] - setup.b[1] == pytest.approx(1e-9, rel=1e-9)
+
+
+def test_device_pin_capacitance_is_drawn_on_push_pull_buses(link):
+    design, bus = link
+    dev = bus.devices[1]
+    toleranced = replace(bus, devices=(bus.devices[0], replace(dev, capacitance_tolerance=0.2)))
+    specs = ppb.parameter_specs(toleranced)
+    key = ("pins", bus.id, dev.ref)
+    assert any(spec[-1] == key and spec[3] == 0.2 for spec in specs)
+    varied = ppb.vary_bus(toleranced, {key: 1.2}.get)
+    assert varied.devices[1].capacitance_factor == 1.2
+    assert varied.devices[0].capacitance_factor == 1.0
+    # a pin's capacitance on the line is the stored value times the drawn factor
+    from pinlib.buses.pushline import Endpoint
+    pin = dev.part.pins["cipo"] if "cipo" in dev.part.pins else next(iter(dev.part.pins.values()))
+    stored = Endpoint(dev, "x", pin, 3.3).c_in
+    assert Endpoint(varied.devices[1], "x", pin, 3.3).c_in == pytest.approx(1.2 * stored)
+    axes = pptable.axes_of(specs, 1.0, 1e-6)
+    pins_axis = next(ax for ax in axes if ax.keys == (key,))
+    assert pins_axis.kind == "capacitance" and pins_axis.lo == pytest.approx(0.8)

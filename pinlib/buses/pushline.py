@@ -199,7 +199,10 @@ class Endpoint:
 
     @property
     def c_in(self) -> float:
-        return 0.0 if self.pin.c_in is None else float(self.pin.c_in.at())
+        """The pin's capacitance (times the device's drawn factor on a varied board). [F]"""
+        if self.pin.c_in is None:
+            return 0.0
+        return float(self.pin.c_in.at()) * self.device.capacitance_factor
 
     @property
     def drives(self) -> bool:
