@@ -310,7 +310,7 @@ def _unique(labels) -> list[str]:
 def _keep(*arrays: np.ndarray, positive: Sequence[bool]) -> np.ndarray:
     """Mask of the points that can be drawn: finite, and positive on log axes."""
     ok = np.ones(arrays[0].shape, dtype=bool)
-    for a, pos in zip(arrays, positive):
+    for a, pos in zip(arrays, positive, strict=True):
         ok &= np.isfinite(a)
         if pos:
             ok &= a > 0.0
@@ -387,11 +387,11 @@ def pullup_window(cb, rp_min, rp_max, *, chosen_cb, chosen_rp,
     ok_band = ok_lo & ok_hi
     top = np.maximum(lo, hi)  # display clip: no band where the window is closed
     band = [{"cb": _num(a * fx), "lo": _num(b * fy), "hi": _num(t * fy), "series": region_label}
-            for a, b, t in zip(c[ok_band], lo[ok_band], top[ok_band])]
+            for a, b, t in zip(c[ok_band], lo[ok_band], top[ok_band], strict=True)]
     lines = ([{"cb": _num(a * fx), "rp": _num(b * fy), "series": rp_min_label}
-              for a, b in zip(c[ok_lo], lo[ok_lo])]
+              for a, b in zip(c[ok_lo], lo[ok_lo], strict=True)]
              + [{"cb": _num(a * fx), "rp": _num(b * fy), "series": rp_max_label}
-                for a, b in zip(c[ok_hi], hi[ok_hi])])
+                for a, b in zip(c[ok_hi], hi[ok_hi], strict=True)])
     point = [{"cb": _num(x0 * fx), "rp": _num(y0 * fy), "series": chosen_label}]
 
     area = alt.Chart(_data(band)).mark_area(opacity=_REGION_OPACITY).encode(
@@ -502,9 +502,10 @@ def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
     kinds = (["datasheet"] if okp.any() else []) + ([op[2]] if op else [])
     shapes = (["diamond"] if okp.any() else []) + (["cross"] if op else [])
     rows = [{"load": _num(a * fx), "t": _num(b * fy), "series": names[k]}
-            for k in range(y2.shape[0]) for a, b in zip(xs[k][ok[k]], ys[k][ok[k]])]
-    pts = [{"load": _num(a * fx), "t": _num(b * fy), "series": s, "kind": "datasheet"}
-           for a, b, s, keep in zip(px, py, plabels, okp) if keep] if okp.any() else None
+            for k in range(y2.shape[0]) for a, b in zip(xs[k][ok[k]], ys[k][ok[k]], strict=True)]
+    pts = ([{"load": _num(a * fx), "t": _num(b * fy), "series": s, "kind": "datasheet"}
+            for a, b, s, keep in zip(px, py, plabels, okp, strict=True) if keep]
+           if okp.any() else None)
     op_rows = ([{"load": _num(op[0] * fx), "t": _num(op[1] * fy), "kind": op[2]}]
                if op else None)
     known = _reuse(("edge_vs_load", x_title, y_title, bool(log_x), bool(log_y),
@@ -613,7 +614,7 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
         a = vs[name]
         ok = _keep(tt, a, positive=(False, False))
         rows += [{"t": _num(p * fx), "v": _num(q * fy), "series": name}
-                 for p, q in zip(tt[ok], a[ok])]
+                 for p, q in zip(tt[ok], a[ok], strict=True)]
     known = _reuse(("waveforms", x_title, y_title, tuple(names), band_label,
                     threshold_label, vdd_label, title, subtitle, width, height),
                    [band_rows, levels, levels] + ([vdd_rows] if vdd_label else []) + [rows])

@@ -552,7 +552,7 @@ def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bu
         own = raws
     segments = []
     all_devices: list[Device] = []
-    for si, (rs, sloc) in enumerate(zip(own, seg_locs)):
+    for si, (rs, sloc) in enumerate(zip(own, seg_locs, strict=True)):
         # A segment key falls back to the bus's own value.
         def pick(key, default=None, rs=rs):
             v = getattr(rs, key)

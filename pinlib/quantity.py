@@ -166,7 +166,8 @@ def parse(text: object, unit: str, *, field: str | None = None) -> float:
     if isinstance(text, (int, float)):
         _, example = UNITS[unit]
         raise _fail(text, unit, field, M.BARE_NUMBER,
-                    hint=f"write it as a string with its unit, e.g. \"{text} {example.split()[-1]}\"")
+                    hint="write it as a string with its unit, e.g. "
+                         f"\"{text} {example.split()[-1]}\"")
     if not isinstance(text, str):
         raise _fail(text, unit, field, M.TYPE_AS_QUANTITY.format(type=type(text).__name__))
     value = _parse_text(text, unit, field)

@@ -49,7 +49,8 @@ def _table(rows: list[list[str]], indent: str) -> list[str]:
     widths = [max(len(r[i]) for r in rows) for i in range(len(rows[0]))]
     out = []
     for r in rows:
-        out.append(indent + "  ".join(cell.ljust(w) for cell, w in zip(r, widths)).rstrip())
+        out.append(indent + "  ".join(cell.ljust(w)
+                                      for cell, w in zip(r, widths, strict=True)).rstrip())
     return out
 
 

@@ -157,15 +157,19 @@ def min_margin(value, limit):
 def check_max(id, value, limit, unit, source, message, *, warn_margin=0.10, **kw) -> Check:
     """A check that ``value <= limit``; margin ``(limit - value) / |limit|``."""
     value, limit = float(value), float(limit)
-    margin = (limit - value) / abs(limit) if limit != 0 else (math.inf if value <= 0 else -math.inf)
-    return Check(id, _status(margin, warn_margin), value, limit, unit, margin, source, message, **kw)
+    margin = ((limit - value) / abs(limit) if limit != 0
+              else (math.inf if value <= 0 else -math.inf))
+    return Check(id, _status(margin, warn_margin), value, limit, unit, margin, source, message,
+                 **kw)
 
 
 def check_min(id, value, limit, unit, source, message, *, warn_margin=0.10, **kw) -> Check:
     """A check that ``value >= limit``; margin ``(value - limit) / |limit|``."""
     value, limit = float(value), float(limit)
-    margin = (value - limit) / abs(limit) if limit != 0 else (math.inf if value >= 0 else -math.inf)
-    return Check(id, _status(margin, warn_margin), value, limit, unit, margin, source, message, **kw)
+    margin = ((value - limit) / abs(limit) if limit != 0
+              else (math.inf if value >= 0 else -math.inf))
+    return Check(id, _status(margin, warn_margin), value, limit, unit, margin, source, message,
+                 **kw)
 
 
 def check_true(id, ok, source, message, **kw) -> Check:
@@ -242,7 +246,8 @@ class BusResult(Group):
                      + [ln.status for ln in self.lines])
 
     def all_checks(self):
-        """Every check of the bus with where it sits: (segment id or None, signal or None, check)."""
+        """Every check of the bus with where it sits: (segment id or None, signal or None,
+        check)."""
         for c in self.checks:
             yield None, None, c
         for s in self.segments:

@@ -103,7 +103,8 @@ def _resolve_arrays(parts: tuple, counters: dict[tuple, int]) -> tuple:
 
 
 def dotted(loc) -> str:
-    """A key path as users read it: ``('bus', 0, 'devices', 2, 'part')`` -> ``bus[0].devices[2].part``."""
+    """A key path as users read it: ``('bus', 0, 'devices', 2, 'part')`` ->
+    ``bus[0].devices[2].part``."""
     out = ""
     for p in loc:
         out += f"[{p}]" if isinstance(p, int) else (f".{p}" if out else str(p))

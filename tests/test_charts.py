@@ -280,7 +280,7 @@ def test_timing_budget_spec():
     assert [(r["text"], r["series"]) for r in notes["data"]["values"]] == [
         ("margin +5.5 ns", "pass"), ("margin -500 ps", "fail")]
     scale = _colour_scale(chart)
-    colour = dict(zip(scale["domain"], scale["range"]))
+    colour = dict(zip(scale["domain"], scale["range"], strict=True))
     assert colour["pass"] == charts.PASS and colour["fail"] == charts.FAIL
     assert colour["available (half period)"] == charts.LIMIT
     components = ["controller t_valid", "flight", "t_setup", "peripheral t_valid"]

@@ -150,7 +150,10 @@ protocol = "spi"
 spi_mode = 0
 clock = "10 MHz"
 supply = "3.3 V"
-devices = [{ ref = "U1", part = "mcu-3v3", role = "controller" }, { ref = "U7", part = "nor-flash-spi" }]
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U7", part = "nor-flash-spi" },
+]
 lines.sclk = { length = "4 cm", geometry = "outer", series_resistor = "auto" }
 lines.copi = { length = "4 cm", geometry = "outer" }
 lines.cipo = { length = "4 cm", geometry = "outer" }

@@ -42,7 +42,8 @@ i_ol = "2 mA"
 @pytest.fixture()
 def part(tmp_path):
     (tmp_path / "t.toml").write_text(PART, encoding="utf-8")
-    return load_library([tmp_path], builtin=False, env=False, strict=True).get("t-lvttl-out"), tmp_path
+    lib = load_library([tmp_path], builtin=False, env=False, strict=True)
+    return lib.get("t-lvttl-out"), tmp_path
 
 
 def test_output_resistance_from_levels(part):

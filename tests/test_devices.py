@@ -276,7 +276,8 @@ def test_stored_values_are_the_limit_that_hurts(lib):
                 continue
             field = path[-1]
             vdd = (part.supply_for(path[1] if path[0] == "sides" else None) or part.supply)
-            at = (lambda x, vdd=vdd: x.resolve(vdd.max.value) if hasattr(x, "resolve") else x)
+            def at(x, vdd=vdd):
+                return x.resolve(vdd.max.value) if hasattr(x, "resolve") else x
             stored, typ = at(v.value), at(v.typ)
             where = f"{pid}: {'.'.join(map(str, path))}"
             if field in _ABOVE_TYP:
@@ -313,7 +314,7 @@ _RC_FACTOR = {"10-90": math.log(9.0), "20-80": math.log(4.0)}
 def test_edges_are_consistent_with_r_out_and_load(lib):
     checked = 0
     for pid, part in lib.parts.items():
-        for side, name, pin in _all_pins(part):
+        for _side, name, pin in _all_pins(part):
             loads = sorted(pin.edges, key=lambda e: e.load.value)
             for e in loads:
                 for t in (e.rise, e.fall):
@@ -323,7 +324,7 @@ def test_edges_are_consistent_with_r_out_and_load(lib):
                     assert t.value >= floor, f"{pid} {name}: {t.text} at {e.load.text}"
                     checked += 1
             # A heavier load never gives a faster edge.
-            for lo, hi in zip(loads, loads[1:]):
+            for lo, hi in zip(loads, loads[1:], strict=False):
                 for attr in ("rise", "fall"):
                     a, b = getattr(lo, attr), getattr(hi, attr)
                     if a is not None and b is not None:
@@ -418,7 +419,7 @@ SMBUS31_TABLE4 = {"v_il": 0.8, "v_ih": 1.35, "v_ol": 0.4, "i_ol": 4e-3,
 def test_smbus_devices_use_the_smbus_levels(lib):
     smbus = {k: p for k, p in lib.placeable().items() if _extends(lib, k, "smbus-device")}
     assert len(smbus) >= 2
-    for pid, part in smbus.items():
+    for part in smbus.values():
         sda, scl = part.pin_for("i2c-sda")[1], part.pin_for("i2c-scl")[1]
         for pin in (sda, scl):
             assert pin.v_il.at(None) == pytest.approx(SMBUS31_TABLE4["v_il"], abs=1e-9)

@@ -172,7 +172,7 @@ def test_fit_reproduces_rc_edge_table(levels):
 
 
 def test_mixed_level_table_fits_one_driver():
-    loads, levels, times = (list(x) for x in zip(*RC_EDGE_TABLE))
+    loads, levels, times = (list(x) for x in zip(*RC_EDGE_TABLE, strict=True))
     fit = fit_driver(loads, times, levels)
     # derived from the RC-edge identities: one 20 Ω driver explains all four rows
     assert fit.r_out == pytest.approx(20.0, rel=5e-4)
@@ -484,7 +484,7 @@ def test_fit_recovers_a_driver_simulated_by_ngspice(r_out, t_ramp):
     loads = [15e-12, 50e-12, 100e-12]
     levels = ["10-90", "20-80", "10-90"]
     times = []
-    for c, lv in zip(loads, levels):
+    for c, lv in zip(loads, levels, strict=True):
         got = run_deck(driver_deck(r_out, t_ramp, c), ["t10", "t20", "t80", "t90"])
         times.append(got["t90"] - got["t10"] if lv == "10-90" else got["t80"] - got["t20"])
     fit = fit_driver(loads, times, levels)

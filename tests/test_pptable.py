@@ -123,7 +123,8 @@ def test_axes_group_line_factors_and_keep_rails_apart():
     length = next(ax for ax in axes if ax.kind == "length")
     assert set(length.keys) == {("line-length", "x", "sclk"), ("line-length", "x", "copi")}
     # a normal draw is covered to 4 sigma: 4/3 of a tolerance at 3 sigma
-    assert length.lo == pytest.approx(1 - 0.1 * 4 / 3) and length.hi == pytest.approx(1 + 0.1 * 4 / 3)
+    assert length.lo == pytest.approx(1 - 0.1 * 4 / 3)
+    assert length.hi == pytest.approx(1 + 0.1 * 4 / 3)
     cap = next(ax for ax in axes if ax.kind == "capacitance")
     assert cap.lo == pytest.approx(1 - 0.2 * 4 / 3)
 

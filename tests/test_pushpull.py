@@ -265,7 +265,7 @@ def test_auto_series_resistor_is_e24_nearest_of_z0_minus_r_out():
     ref = [eseries_pkg.find_nearest(eseries_pkg.E24, x) for x in z0 - r]
     assert ours == pytest.approx(ref, rel=1e-12)
     # the array gives what the scalars give one by one
-    assert list(ours) == [auto_series_resistor(a, b) for a, b in zip(z0, r)]
+    assert list(ours) == [auto_series_resistor(a, b) for a, b in zip(z0, r, strict=True)]
 
 
 def test_common_practice_series_resistor_for_cmos_sources():

@@ -312,7 +312,7 @@ def test_two_processes_recording_lose_nothing(tmp_path):
     path = _many_pins_part(team)
     procs = [_writer(team, 0, 50), _writer(team, 50, 100)]
     outputs = [p.communicate(timeout=300) for p in procs]
-    for p, (out, err) in zip(procs, outputs):
+    for p, (out, err) in zip(procs, outputs, strict=True):
         assert p.returncode == 0, err
         assert len(out.split()) == 50
     assert _c_in_values(path) == {i: f"{i + 1} pF" for i in range(100)}

@@ -429,7 +429,10 @@ devices = [
   {{ ref = "U1", part = "pp-ctrl", role = "controller", pin = "reset" }},
   {{ ref = "U2", part = "pp-periph", pin = "reset" }},
 ]
-lines.reset = {{ length = "6 cm", capacitance = "1 pF/cm", delay = "50 ps/cm", series_resistor = "{reset_rs}" }}
+lines.reset.length = "6 cm"
+lines.reset.capacitance = "1 pF/cm"
+lines.reset.delay = "50 ps/cm"
+lines.reset.series_resistor = "{reset_rs}"
 
 [[bus]]
 id = "irq"

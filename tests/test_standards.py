@@ -77,7 +77,7 @@ def _field_and_scale(key: str) -> tuple[str, float]:
 def _rows(table: dict):
     for key, values in table.items():
         field, scale = _field_and_scale(key)
-        for mode, printed in zip(MODES, values):
+        for mode, printed in zip(MODES, values, strict=True):
             yield pytest.param(mode, field, printed, scale, id=f"{mode}-{key}")
 
 
@@ -306,7 +306,7 @@ CLASSES = ("100k", "400k", "1m")
 def _smbus_rows(table: dict):
     for key, values in table.items():
         head, _, unit = key.rpartition("_")
-        for name, printed in zip(CLASSES, values):
+        for name, printed in zip(CLASSES, values, strict=True):
             yield pytest.param(name, head, printed, SMBUS_SCALE[unit], id=f"{name}-{key}")
 
 
@@ -389,7 +389,7 @@ def test_smbus_timing_follows_i2c_in_each_class():
     # custom consistency check between two transcriptions: as recorded in REFERENCES.md,
     # SMBus 3.1 table 2 and UM10204 rev. 6 table 10 print the same numbers for these
     # limits, class by class, so a typo in either table shows up here
-    for cls_name, mode_name in zip(CLASSES, MODES):
+    for cls_name, mode_name in zip(CLASSES, MODES, strict=True):
         c, m = smbus.smbus_class(cls_name), i2c.i2c_mode(mode_name)
         for sm_field, i2c_field in [("t_buf", "t_buf"), ("t_hd_sta", "t_hd_sta"),
                                     ("t_su_sta", "t_su_sta"), ("t_su_sto", "t_su_sto"),
@@ -446,7 +446,7 @@ def test_jedec_output_rows():
         for o in s.outputs
     ]  # fmt: skip
     assert len(got) == len(JEDEC_OUTPUTS)
-    for row, expected in zip(got, JEDEC_OUTPUTS):
+    for row, expected in zip(got, JEDEC_OUTPUTS, strict=True):
         assert row[0] == expected[0]
         assert row[1] == pytest.approx(expected[1], rel=1e-12)
         assert row[2:] == expected[2:]

@@ -520,7 +520,7 @@ def _links(bus: Bus, seg_ins: list[SegmentInputs]) -> dict[int, list[_Link]]:
             if d.is_bridge:
                 where.setdefault(d.ref, []).append((s.index, d))
     out: dict[int, list[_Link]] = {s.index: [] for s in seg_ins}
-    for ref, places in where.items():
+    for places in where.values():
         if len(places) != 2:
             continue
         (ia, da), (ib, db) = places
@@ -811,7 +811,7 @@ def _line_levels(ctx: _Ctx, seg_in: SegmentInputs, ln: LineInputs, grp: Group) -
     if levels or offset_levels:
         # sink current against each driver's rating (the worst one reported)
         rows = []
-        for label, _, i, d in levels + offset_levels:
+        for _label, _, i, d in levels + offset_levels:
             if d is None:
                 continue
             ratio = np.max(i) / d.i_ol
@@ -1287,7 +1287,7 @@ def evaluate_bus(bus: Bus, design: Design) -> BusResult:
         result.figures, result.checks, result.notes = g.figures, g.checks, [head] + g.notes
     else:
         result.notes.append(head)
-        for s, g in zip(seg_ins, groups):
+        for s, g in zip(seg_ins, groups, strict=True):
             sr = SegmentResult(id=s.segment.id)
             sr.figures, sr.checks, sr.notes = g.figures, g.checks, g.notes
             result.segments.append(sr)

@@ -3,8 +3,9 @@
 A drawn board of an SPI or GPIO bus differs from the design in its rails, its line
 lengths and its extra line capacitance (:mod:`pinlib.buses.ppbatch`).  Each line's
 results (its checks, and the flights it gives the timing budget) depend only on that
-line's own length and capacitance factors, on the rails and on the pins' capacitance; the bus's timing checks
-are sums of flights from several lines (:func:`pinlib.buses.spi.budget_terms`).  So:
+line's own length and capacitance factors, on the rails and on the pins' capacitance; the
+bus's timing checks are sums of flights from several lines
+(:func:`pinlib.buses.spi.budget_terms`).  So:
 
 1. **Nodes.**  The engine evaluates the bus at every node of a grid over the box: one
    axis for the length factor (every line at the same factor), one for the extra
@@ -464,7 +465,7 @@ def _flight_slots(sa, labels) -> list:
     if sa is None:
         return []
     out = []
-    for i, p in enumerate(sa.peripherals):
+    for i, _p in enumerate(sa.peripherals):
         slots = {}
         if "sclk" in labels and ("flight", i, "sclk-rise", "early") in labels["sclk"]:
             slots["sclk"] = {e: labels["sclk"].index(("flight", i, f"sclk-{e}", "early"))

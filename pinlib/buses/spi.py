@@ -840,7 +840,7 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
         res.add(check_max("f-max", clock, f, "Hz", source,
                           f"clock {_fmt(clock, 'Hz')} against {ref}'s f_max {_fmt(f, 'Hz')}",
                           warn_margin=warn, subject=ref))
-    for sig, la in sa.lines.items():
+    for la in sa.lines.values():
         res.lines.append(la.result)
     res.figure("max_clock", sa.max_clock(), "Hz")
     for fig, tid in (("cipo_setup_margin", "cipo-setup"), ("copi_setup_margin", "copi-setup"),

@@ -19,7 +19,7 @@ __all__ = ["add_parser", "run"]
 
 HELP = "list, show, create, record into and check library parts"
 
-EPILOG = """\
+EPILOG = f"""\
 examples:
   pinlib parts list --function i2c-sda --supply 3.3V
   pinlib parts show eeprom-i2c
@@ -28,9 +28,9 @@ examples:
   pinlib parts check parts
   pinlib parts schema --output part.schema.json
 
-Team folders come from PINLIB_LIBRARY (separated by '%s') and --library; a team part
+Team folders come from PINLIB_LIBRARY (separated by '{os.pathsep}') and --library; a team part
 with the id of a built-in part overrides it.
-""" % os.pathsep
+"""
 
 _EXAMPLES = {
     "list": """\
@@ -208,10 +208,10 @@ def _kind(lib, pid) -> str:
 
 def _table(rows: list[list[str]], header: list[str]) -> str:
     widths = [max(len(str(r[i])) for r in rows + [header]) for i in range(len(header))]
-    lines = ["  ".join(str(c).ljust(w) for c, w in zip(header, widths)).rstrip(),
+    lines = ["  ".join(str(c).ljust(w) for c, w in zip(header, widths, strict=True)).rstrip(),
              "  ".join("-" * w for w in widths)]
     for r in rows:
-        lines.append("  ".join(str(c).ljust(w) for c, w in zip(r, widths)).rstrip())
+        lines.append("  ".join(str(c).ljust(w) for c, w in zip(r, widths, strict=True)).rstrip())
     return "\n".join(lines)
 
 

@@ -117,7 +117,7 @@ def _table(rows) -> list[str]:
     new_w = max([len(c[1]) for c in cells] + [5]) + 2
     out.append(f"  {'figure':<{name_w}}{'before':<{old_w}}{'after':<{new_w}}change")
     path = None
-    for row, (old, new) in zip(rows, cells):
+    for row, (old, new) in zip(rows, cells, strict=True):
         if row.path != path:
             path = row.path
             out.append(f"{path}")

@@ -60,7 +60,7 @@ def _validator(info) -> BeforeValidator | None:
     return None
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def _probe(func) -> ValueKind | None:
     try:
         got = func("0.7 VDD")
@@ -129,7 +129,7 @@ def models(root: type[BaseModel] = schema.Part) -> list[type[BaseModel]]:
 _GLOSSARY_ROW = re.compile(r"^([a-z_]+)\s{2,}(.+?)\s{2,}(\S+)\s*$")
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def glossary() -> dict[str, str]:
     """Field name -> meaning, from the glossary table of the schema module's docstring."""
     out = {}

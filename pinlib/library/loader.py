@@ -39,7 +39,8 @@ __all__ = [
     "library_folders",
 ]
 
-BUILTIN_DIR = Path(os.environ.get("PINLIB_BUILTIN", Path(__file__).resolve().parents[2] / "devices"))
+BUILTIN_DIR = Path(os.environ.get("PINLIB_BUILTIN",
+                                  Path(__file__).resolve().parents[2] / "devices"))
 
 _NOT_INHERITED = {"id", "extends", "abstract"}
 
@@ -91,7 +92,8 @@ def pydantic_errors(exc: ValidationError, *, file=None, locate=None, cls=Library
             continue
         kind = err.get("type", "")
         if kind == "extra_forbidden":
-            problem, expected = M.UNKNOWN_FIELD, "a field of the part format (see 'pinlib parts schema')"
+            problem = M.UNKNOWN_FIELD
+            expected = "a field of the part format (see 'pinlib parts schema')"
         elif kind == "missing":
             problem, expected = M.MISSING_FIELD, None
         elif kind == "literal_error":
@@ -116,9 +118,11 @@ def _merge(parent: dict, child: dict, parent_origin: dict, child_id: str, prefix
         if not prefix and key in _NOT_INHERITED:
             merged[key] = value
             continue
-        if isinstance(value, dict) and isinstance(merged.get(key), dict) and not _is_value_table(value):
-            sub, sub_origin = _merge(merged[key], value, {k[len(path):]: v for k, v in origin.items()
-                                                          if k[: len(path)] == path}, child_id)
+        if (isinstance(value, dict) and isinstance(merged.get(key), dict)
+                and not _is_value_table(value)):
+            sub, sub_origin = _merge(merged[key], value,
+                                     {k[len(path):]: v for k, v in origin.items()
+                                      if k[: len(path)] == path}, child_id)
             merged[key] = sub
             origin = {k: v for k, v in origin.items() if k[: len(path)] != path}
             origin.update({path + k: v for k, v in sub_origin.items()})
@@ -181,7 +185,7 @@ def _with_origins(part: Part, origin: dict, own: str) -> Part:
             return obj if all(out[k] is v for k, v in obj.items()) else out
         if isinstance(obj, tuple):
             out = tuple(walk(v, path + (i,)) for i, v in enumerate(obj))
-            return obj if all(a is b for a, b in zip(out, obj)) else out
+            return obj if all(a is b for a, b in zip(out, obj, strict=True)) else out
         if isinstance(obj, BaseModel):
             changes = {}
             for name in type(obj).model_fields:

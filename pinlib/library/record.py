@@ -168,7 +168,7 @@ def _validate(library: loader.Library, part_id: str, path: Path, text: str,
     except LibraryError as err:
         raise _refusal(err, path, field, old_text) from None
     # A part that extends this one and loaded before must still load.
-    for child_id, pf in files.items():
+    for child_id, _pf in files.items():
         if child_id == part_id or child_id not in library.parts:
             continue
         if part_id not in _ancestors(child_id, files):

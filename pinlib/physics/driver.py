@@ -705,7 +705,7 @@ def fit_driver(loads, times, levels="10-90", *, r_out=None, r_out_dc=None):
     if r_out_dc is not None:
         r_dc = float(_positive(r_out_dc, "r_out_dc", "[Ω]"))
 
-    conditions = {(float(c), n) for c, n in zip(loads_a, names)}
+    conditions = {(float(c), n) for c, n in zip(loads_a, names, strict=True)}
     # r_out_dc enters only a fit that cannot separate r_out from t_ramp by itself, so it
     # is part of the key only then (the SPI engine fits the same points with and without).
     uses_dc = r_out is None and len(conditions) < 2 and r_out_dc is not None

@@ -24,7 +24,6 @@ from __future__ import annotations
 
 import math
 import warnings
-from collections.abc import Sequence
 from typing import NamedTuple
 
 import numpy as np

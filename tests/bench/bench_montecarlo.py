@@ -87,7 +87,8 @@ def run(repeats: int = 3, quick: bool = False) -> list[Result]:
     with tempfile.TemporaryDirectory(prefix="pinlib-bench-") as tmp:
         path = Path(tmp) / "i2c.toml"
         path.write_text(I2C, encoding="utf-8")
-        cases = [("I2C bus", load_design(path)), ("demo open-drain buses", _open_drain_only(load_design(DEMO)))]
+        cases = [("I2C bus", load_design(path)),
+                 ("demo open-drain buses", _open_drain_only(load_design(DEMO)))]
         for label, design in cases:
             rate, one, result = _rate(design, n, repeats)
             sampled = sorted({c.bus for c in result.checks})
