@@ -10,7 +10,9 @@ DEMO := workbooks/designs/demo-board.toml
 $(STAMP): pyproject.toml
 	test -x $(BIN)/python || $(PY) -m venv $(VENV)
 	$(BIN)/python -m pip install -q --upgrade pip
-	$(BIN)/python -m pip install -q -e ".[test,notebook]"
+	# compat mode: the checkout goes on sys.path through a .pth file, as an installed
+	# package would be found, rather than through an import hook on every start
+	$(BIN)/python -m pip install -q -e ".[test,notebook]" --config-settings editable_mode=compat
 	touch $(STAMP)
 
 demo: $(STAMP)

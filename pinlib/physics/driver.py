@@ -83,8 +83,8 @@ _RC_SHARE = 0.05
 # from 0 to four times the ramp whose 20-80 % edge alone is the slowest point.
 _R_LOW_FACTOR = 1e-6
 _BOX_FACTOR = 4.0
-_GRID_R = 121
-_GRID_T = 81
+_GRID_R = 61
+_GRID_T = 41
 _STARTS = 4
 
 # Levenberg-Marquardt settings (scaled parameters: ln r_out and t_ramp / max(times)).
