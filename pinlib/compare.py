@@ -289,6 +289,7 @@ def snapshot(design, result) -> dict:
                          expected=f'"{RESULT_FORMAT}"')
     design_dir = design.path.parent if design.path else None
     lib = design.library
+    lib.resolve_all()  # the snapshot counts the library's problems: every part validated
     out["created"] = _now()
     out["pinlib"] = __version__
     if design.path:

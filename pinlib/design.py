@@ -392,7 +392,7 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
     if library is None:
         base = path.parent if path else Path.cwd()
         folders = [base / p for p in raw.library] + [Path(p) for p in library_folders]
-        library = load_library(folders)
+        library = load_library(folders, lazy=True)  # only the parts the design names
         missing = [p for p in library.problems if "folder not found" in p.problem]
         if missing:
             raise DesignError(M.DESIGN_LIBRARY_MISSING,

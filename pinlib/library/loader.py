@@ -15,7 +15,7 @@ from __future__ import annotations
 
 import difflib
 import os
-from collections.abc import Iterable
+from collections.abc import Iterable, Iterator, Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -29,6 +29,7 @@ from pinlib.tomlfile import dotted as dotted_path
 from pinlib.tomlfile import line_index, line_of, load
 
 __all__ = [
+    "LazyParts",
     "BUILTIN_DIR",
     "Library",
     "PartFile",
@@ -205,11 +206,70 @@ class _Many(Exception):
         super().__init__("; ".join(e.message for e in errors))
 
 
+class LazyParts(Mapping):
+    """Parts by id, each merged and validated when first asked for.
+
+    A design names a few parts of a library that may hold hundreds; this mapping lets
+    ``pinlib check`` validate only those (and the classes they extend).  Iterating, or
+    asking the length, validates every part.  A part that does not validate is absent,
+    and its problems join ``Library.problems`` when it is first asked for.
+    """
+
+    def __init__(self, files: dict, problems: list):
+        self._files = files
+        self._problems = problems
+        self._done: dict[str, Part] = {}
+        self._failed: set[str] = set()
+        self._complete = False
+
+    def _get(self, pid: str) -> Part | None:
+        if pid in self._done:
+            return self._done[pid]
+        if pid in self._failed or pid not in self._files:
+            return None
+        try:
+            part = _resolve(pid, self._files)
+        except _Many as many:
+            self._problems.extend(many.errors)
+            self._failed.add(pid)
+            return None
+        except LibraryError as err:
+            self._problems.append(err)
+            self._failed.add(pid)
+            return None
+        self._done[pid] = part
+        return part
+
+    def resolve_all(self) -> None:
+        """Validate every part (so that ``Library.problems`` is complete)."""
+        if not self._complete:
+            for pid in self._files:
+                self._get(pid)
+            self._complete = True
+
+    def __getitem__(self, pid: str) -> Part:
+        part = self._get(pid)
+        if part is None:
+            raise KeyError(pid)
+        return part
+
+    def __contains__(self, pid: object) -> bool:
+        return isinstance(pid, str) and self._get(pid) is not None
+
+    def __iter__(self) -> Iterator[str]:
+        self.resolve_all()
+        return iter([pid for pid in self._files if pid in self._done])
+
+    def __len__(self) -> int:
+        self.resolve_all()
+        return len(self._done)
+
+
 @dataclass
 class Library:
     """The merged library: validated parts by id, where each came from, and any problems."""
 
-    parts: dict[str, Part] = field(default_factory=dict)
+    parts: Mapping[str, Part] = field(default_factory=dict)
     files: dict[str, PartFile] = field(default_factory=dict)
     overrides: dict[str, Path] = field(default_factory=dict)  # id -> built-in file overridden
     problems: list[PinlibError] = field(default_factory=list)
@@ -249,6 +309,11 @@ class Library:
                 return out
             out.append(parent)
 
+    def resolve_all(self) -> None:
+        """Validate every part of a library loaded with ``lazy=True`` (no-op otherwise)."""
+        if isinstance(self.parts, LazyParts):
+            self.parts.resolve_all()
+
     def placeable(self) -> dict[str, Part]:
         """Parts that can stand on a board (not abstract classes)."""
         return {k: p for k, p in self.parts.items() if not p.abstract}
@@ -264,7 +329,7 @@ def library_folders(extra: Iterable[str | os.PathLike] = (), *, env: bool = True
 
 
 def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = True,
-                 env: bool = True, strict: bool = False) -> Library:
+                 env: bool = True, strict: bool = False, lazy: bool = False) -> Library:
     """Load and merge the library.
 
     Parameters
@@ -278,6 +343,10 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
     strict : bool
         Raise the first problem instead of collecting it in ``Library.problems``
         (parts with problems are left out of the library either way).
+    lazy : bool
+        Read every file now but validate each part when it is first used
+        (:class:`LazyParts`); ``Library.problems`` then lists a part's problems once the
+        part has been asked for, or after ``Library.resolve_all()``.
     """
     lib = Library()
     found: dict[str, PartFile] = {}
@@ -327,6 +396,9 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
                 team_seen[pid] = path
             found[pid] = pf
     lib.files = found
+    if lazy and not strict:
+        lib.parts = LazyParts(found, lib.problems)
+        return lib
     for pid in found:
         try:
             lib.parts[pid] = _resolve(pid, found)
