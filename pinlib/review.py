@@ -928,7 +928,9 @@ class _Html:
         self.w('<section id="changes" aria-labelledby="h-changes">',
                '<h2 id="h-changes">Changes against the snapshot</h2>')
         if cl is None:
-            self.w(f'<p class="none">{_e(_no_snapshot_text(self.r.design))}</p>',
+            # the sentence marks its command as `code` (Markdown); HTML shows it as <code>
+            text = re.sub(r"`([^`]*)`", r"<code>\1</code>", _e(_no_snapshot_text(self.r.design)))
+            self.w(f'<p class="none">{text}</p>',
                    "</section>")
             return
         from pinlib.compare import format_change, format_figure
