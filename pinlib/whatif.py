@@ -741,6 +741,9 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
     span = 4.0 / 3.0 if design.distribution == "normal" else 1.0
     pp_notes: list[str] = []
     engine_boards: dict[str, int] = {}
+    # the tables get a bar of their own; a caller's callback follows the boards only
+    table_progress = False if callable(progress) and not isinstance(progress, bool) \
+        else progress
     bar = progress_bar(n, desc="Monte Carlo", unit="board", enabled=progress)
     with bar:
         for start in range(0, n, chunk):
@@ -751,7 +754,8 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
             for bus in design.buses:
                 if bus.protocol in ppb.PROTOCOLS:
                     bb = ppb.build(bus, design, scen.factors(bus), m, nominal=nominal[bus.id],
-                                   tables=tables, span=span, floor=_FLOOR)
+                                   tables=tables, span=span, floor=_FLOOR,
+                                   progress=table_progress)
                     for note in bb.notes:
                         if note not in pp_notes:
                             pp_notes.append(note)

@@ -212,3 +212,15 @@ def test_device_pin_capacitance_is_drawn_on_push_pull_buses(link):
     axes = pptable.axes_of(specs, 1.0, 1e-6)
     pins_axis = next(ax for ax in axes if ax.keys == (key,))
     assert pins_axis.kind == "capacitance" and pins_axis.lo == pytest.approx(0.8)
+
+
+def test_building_a_table_reports_its_progress(link):
+    design, bus = link
+    seen = []
+    axes = pptable.axes_of(ppb.parameter_specs(bus), 1.0, 1e-6)
+    chosen = ppb.chosen_resistors(evaluate_bus(bus, design))
+    table = pptable.tabulate(bus, design, axes, chosen,
+                             progress=lambda done, total: seen.append((done, total)))
+    assert isinstance(table, pptable.LineTable)
+    total = table.evaluations
+    assert seen[-1] == (total, total) and len(seen) == total

@@ -249,7 +249,7 @@ class PpBatch:
 
 def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
           nominal=None, tables: dict | None = None, span: float = 1.0,
-          floor: float = 0.0) -> PpBatch:
+          floor: float = 0.0, progress=None) -> PpBatch:
     """Evaluate ``n`` variants of a push-pull bus.
 
     Parameters
@@ -272,6 +272,8 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
     span, floor : float, optional
         The tolerances a table covers (1 for uniform draws) and the smallest factor a
         draw takes. [1]
+    progress : bool, callable or None, optional
+        A bar over the engine evaluations that build a table. [1]
 
     Returns
     -------
@@ -294,7 +296,7 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
              if keys else np.zeros((n, 0)))
     notes: list[str] = []
     todo = np.ones(n, dtype=bool)  # the variants the engine evaluates
-    grid = _table(bus, design, chosen, tables, span, floor, n) if keys else None
+    grid = _table(bus, design, chosen, tables, span, floor, n, progress) if keys else None
     if grid is not None:
         inside = grid.inside(factors, n)
         if inside.all():
@@ -346,7 +348,7 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
     return PpBatch(n, names, items, notes, int(where.size))
 
 
-def _table(bus, design, chosen, tables, span, floor, distinct):
+def _table(bus, design, chosen, tables, span, floor, distinct, progress):
     """The bus's table from ``tables``, built on first use when it costs fewer engine
     evaluations than the distinct variants; None when there is none."""
     if tables is None:
@@ -360,7 +362,7 @@ def _table(bus, design, chosen, tables, span, floor, distinct):
     cost = math.prod(pptable.NODES[ax.kind] for ax in axes) + pptable.VERIFY
     if cost >= distinct:
         return None  # cheaper to run the engine on each variant (and not remembered)
-    got = tables[bus.id] = pptable.tabulate(bus, design, axes, chosen)
+    got = tables[bus.id] = pptable.tabulate(bus, design, axes, chosen, progress=progress)
     return None if isinstance(got, str) else got
 
 

@@ -354,7 +354,7 @@ def _record(bus: Bus, res, sa) -> tuple[dict, list]:
 
 
 def tabulate(bus: Bus, design: Design, axes: list[Axis],
-             resistors: dict) -> LineTable | str:
+             resistors: dict, *, progress=None) -> LineTable | str:
     """Build and verify the table of a push-pull bus, or say why it cannot stand in for
     the engine (see the module notes).
 
@@ -368,11 +368,22 @@ def tabulate(bus: Bus, design: Design, axes: list[Axis],
         From :func:`axes_of`. [1]
     resistors : dict
         Series resistors fixed for "auto" lines (``ppbatch.chosen_resistors``). [Ω]
+    progress : bool, callable or None, optional
+        A bar over the engine evaluations (see :func:`pinlib.progress.progress_bar`). [1]
     """
+    from pinlib.progress import progress_bar
+
     grids = [ax.nodes() for ax in axes]
     shape = tuple(g.size for g in grids)
     if int(np.prod(shape, dtype=float)) > MAX_NODES:
         return f"{int(np.prod(shape, dtype=float))} nodes, more than {MAX_NODES}"
+    bar = progress_bar(int(np.prod(shape)) + VERIFY, desc=f"tables for bus {bus.id}",
+                       unit="engine run", enabled=progress)
+    with bar:
+        return _tabulate(bus, design, axes, resistors, grids, shape, bar)
+
+
+def _tabulate(bus, design, axes, resistors, grids, shape, bar) -> LineTable | str:
     names: list | None = None
     order: list | None = None
     labels: dict[str, list] | None = None
@@ -401,6 +412,7 @@ def tabulate(bus: Bus, design: Design, axes: list[Axis],
         for sig, items in per_line.items():
             values[sig][index] = [item[-1] for item in items]
         node_checks.append(checks)
+        bar.update(1)
     plans = _plan(names, node_checks, labels or {}, values, first_sa, bus, design)
     if isinstance(plans, str):
         return plans
@@ -408,7 +420,7 @@ def tabulate(bus: Bus, design: Design, axes: list[Axis],
     table = LineTable(axes, names, len(node_checks), 0.0, grids,
                       {sig: (labels[sig], values[sig]) for sig in (labels or {})},
                       plans, first_sa, slots, design.warn_margin)
-    return _verify(table, bus, design, resistors)
+    return _verify(table, bus, design, resistors, bar)
 
 
 def _plan(names, node_checks, labels, values, sa, bus, design) -> list | str:
@@ -477,7 +489,8 @@ def _flight_slots(sa, labels) -> list:
     return out
 
 
-def _verify(table: LineTable, bus: Bus, design: Design, resistors: dict) -> LineTable | str:
+def _verify(table: LineTable, bus: Bus, design: Design, resistors: dict,
+            bar) -> LineTable | str:
     """Check the table at VERIFY boards drawn in the box (fixed seed) against the engine."""
     rng = np.random.default_rng(20261201)
     keys = [k for ax in table.axes for k in ax.keys]
@@ -488,6 +501,7 @@ def _verify(table: LineTable, bus: Bus, design: Design, resistors: dict) -> Line
     for b in range(VERIFY):
         res, _ = _evaluate(ppb.vary_bus(bus, {k: float(v[b]) for k, v in draws.items()}.get,
                                         resistors), design)
+        bar.update(1)
         engine = [c for _, c in ppb.flat_checks(res)]
         if [nm["name"] for nm in ppb.check_names(bus, res)] != [nm["name"] for nm in table.names]:
             return "a verification board has other checks"
