@@ -578,8 +578,8 @@ def simulate_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float,
         t_end *= 3.0
     t_edge = float(wf.edge_time(t, v, v_to, v_initial=v_from))
     hi, lo = max(v_from, v_to), min(v_from, v_to)
-    over = float(max(np.max(v) - hi, 0.0))
-    under = float(max(lo - np.min(v), 0.0))
+    over = float(wf.overshoot(v, hi))
+    under = float(wf.undershoot(v, lo))
     return EdgeWave(edge, t, v, v_from, v_to, t_edge, over, under, bool(settled))
 
 

@@ -47,6 +47,8 @@ __all__ = [
 # Largest relative change of a section delay by rounding it to the time grid before
 # distributed_response warns.
 _DELAY_ROUNDING_WARN = 0.05
+#: An overshoot within this fraction of the level is float rounding of a settled edge.
+_SETTLED_RTOL = 1e-12
 # Relative tolerance on the spacing of the time grid given to distributed_response.
 _GRID_RTOL = 1e-6
 # Longest run of time steps solved together, and a cap on the elements of the
@@ -247,7 +249,8 @@ def overshoot(v, v_high):
     Returns
     -------
     numpy.ndarray or float
-        ``max(v) - v_high``, or 0 if the waveform stays at or below it. [V]
+        ``max(v) - v_high``, or 0 if the waveform stays at or below it; an excess within
+        1e-12 of ``v_high`` is the rounding of a settled edge and reads 0. [V]
 
     Examples
     --------
@@ -255,7 +258,9 @@ def overshoot(v, v_high):
     0.3
     """
     v = np.asarray(v, dtype=float)
-    out = np.maximum(v.max(axis=-1) - np.asarray(v_high, dtype=float), 0.0)
+    high = np.asarray(v_high, dtype=float)
+    excess = v.max(axis=-1) - high
+    out = np.where(excess > _SETTLED_RTOL * np.abs(high), excess, 0.0)
     return out[()] if np.ndim(out) == 0 else out
 
 
