@@ -224,3 +224,17 @@ def test_building_a_table_reports_its_progress(link):
     assert isinstance(table, pptable.LineTable)
     total = table.evaluations
     assert seen[-1] == (total, total) and len(seen) == total
+
+
+def test_a_quantity_equal_at_every_node_is_returned_as_it_is():
+    # an infinite margin (a limit of 0) or an undefined value at every node must not be
+    # mixed by the cubic's weights, some of which are negative
+    grids = [np.linspace(0.9, 1.1, 7)]
+    table = np.stack([np.full(7, np.inf), np.full(7, np.nan), np.full(7, 2.5),
+                      np.linspace(0.0, 1.0, 7)], axis=1)
+    pts = np.array([[0.93], [1.0], [1.07]])
+    got = pptable._interpolate(grids, table, pts)
+    assert np.all(np.isposinf(got[:, 0])) and np.all(np.isnan(got[:, 1]))
+    assert np.all(got[:, 2] == 2.5)
+    # the linear column is reproduced exactly (common practice: a cubic holds a line)
+    np.testing.assert_allclose(got[:, 3], (pts[:, 0] - 0.9) / 0.2, rtol=1e-12)

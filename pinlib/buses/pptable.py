@@ -282,7 +282,9 @@ def _interpolate(grids: list, table: np.ndarray, coords: np.ndarray) -> np.ndarr
     n = coords.shape[0]
     q = table.shape[-1]
     flat = table.reshape(-1, q)
-    const = np.ptp(flat, axis=0) == 0 if flat.size else np.zeros(q, dtype=bool)
+    # equal at every node (an infinite margin included), or undefined at every node
+    const = (np.all(flat == flat[:1], axis=0) | np.all(np.isnan(flat), axis=0)) \
+        if flat.size else np.zeros(q, dtype=bool)
     out = np.empty((n, q))
     out[:, const] = flat[0, const] if flat.size else 0.0
     moving = np.flatnonzero(~const)
