@@ -41,6 +41,7 @@ __all__ = [
     "chosen_resistors",
     "check_names",
     "flat_checks",
+    "number_or_nan",
     "build",
 ]
 
@@ -207,7 +208,8 @@ def check_names(bus: Bus, res) -> list[dict]:
     return out
 
 
-def _num(x) -> float:
+def number_or_nan(x) -> float:
+    """A check's value, limit or margin as a float; NaN for none or a yes/no value."""
     if x is None or isinstance(x, bool):
         return math.nan
     try:
@@ -332,9 +334,9 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
             j = index.get(nm["name"])
             if j is None:
                 continue
-            margin[at, j] = _num(c.margin)
-            value[at, j] = _num(c.value)
-            limit[at, j] = _num(c.limit)
+            margin[at, j] = number_or_nan(c.margin)
+            value[at, j] = number_or_nan(c.value)
+            limit[at, j] = number_or_nan(c.limit)
             status[at, j] = _CODE[c.status]
     items: list[Any] = []
     for j, nm in enumerate(names):

@@ -43,6 +43,7 @@ import numpy as np
 
 from pinlib.buses import ppbatch as ppb
 from pinlib.buses import pushpull as pp
+from pinlib.buses.ppbatch import number_or_nan as _num
 from pinlib.buses.pushline import Flight
 from pinlib.design import Bus, Design
 from pinlib.result import STATUS_CODES, min_margin, status_codes
@@ -304,15 +305,6 @@ def _interpolate(grids: list, table: np.ndarray, coords: np.ndarray) -> np.ndarr
         acc += w[:, None] * sub[tuple(index)]
     out[:, moving] = acc
     return out
-
-
-def _num(x) -> float:
-    if x is None or isinstance(x, bool):
-        return math.nan
-    try:
-        return float(x)
-    except (TypeError, ValueError):
-        return math.nan
 
 
 def _evaluate(bus: Bus, design: Design):
