@@ -57,6 +57,9 @@ def main(argv: list[str] | None = None) -> int:
     if not getattr(args, "run", None):
         parser.print_help()
         return 2
+    from pinlib import fitstore
+
+    fitstore.install()  # driver fits kept between runs (PINLIB_CACHE_DIR=off: not)
     try:
         return int(args.run(args) or 0)
     except PinlibError as err:

@@ -103,6 +103,9 @@ _TRIAL_CHUNKS = ((0, 2), (2, _TRIALS))
 # returns the stored fit (and issues its warnings again).  Bounded, oldest dropped first.
 _FIT_CACHE: OrderedDict = OrderedDict()
 _FIT_CACHE_SIZE = 256
+#: A second store of fits, by :func:`fit_key`, that outlives the process (the command
+#: line installs one: :mod:`pinlib.fitstore`); None: fits live in this process only.
+FIT_STORE = None
 
 
 # --------------------------------------------------------------------------- results
@@ -712,6 +715,10 @@ def fit_driver(loads, times, levels="10-90", *, r_out=None, r_out_dc=None):
     key = (loads_a.tobytes(), times_a.tobytes(), tuple(names),
            None if r_out is None else r_fixed, r_dc if uses_dc else None)
     cached = _FIT_CACHE.get(key)
+    if cached is None and FIT_STORE is not None:
+        cached = _from_record(FIT_STORE.get(fit_key(key)))
+        if cached is not None:
+            _FIT_CACHE[key] = cached
     if cached is not None:
         _FIT_CACHE.move_to_end(key)
         for msg in cached.warnings:
@@ -802,7 +809,40 @@ def fit_driver(loads, times, levels="10-90", *, r_out=None, r_out_dc=None):
     _FIT_CACHE[key] = replace(fit, residuals=residuals.copy())
     while len(_FIT_CACHE) > _FIT_CACHE_SIZE:
         _FIT_CACHE.popitem(last=False)
+    if FIT_STORE is not None:
+        FIT_STORE[fit_key(key)] = _to_record(fit)
     return fit
+
+
+def fit_key(key: tuple) -> str:
+    """A digest of a fit's inputs (the points, their levels, a fixed or DC r_out)."""
+    import hashlib
+
+    h = hashlib.sha256()
+    for part in key:
+        h.update(part if isinstance(part, bytes) else repr(part).encode())
+        h.update(b"|")
+    return h.hexdigest()
+
+
+def _to_record(fit: DriverFit) -> dict:
+    # floats written by repr read back to the same bits (json keeps 17 significant digits)
+    return {"r_out": fit.r_out, "t_ramp": fit.t_ramp, "residuals": fit.residuals.tolist(),
+            "rms_residual": fit.rms_residual, "method": fit.method,
+            "warnings": list(fit.warnings), "notes": list(fit.notes)}
+
+
+def _from_record(record) -> DriverFit | None:
+    """A stored fit, or None for a record that is not one (a damaged file)."""
+    try:
+        fit = DriverFit(float(record["r_out"]), float(record["t_ramp"]),
+                        np.array(record["residuals"], dtype=float),
+                        float(record["rms_residual"]), str(record["method"]),
+                        tuple(str(w) for w in record["warnings"]),
+                        tuple(str(n) for n in record["notes"]))
+    except (TypeError, KeyError, ValueError):
+        return None
+    return fit if fit.residuals.ndim == 1 else None
 
 
 def _r_out_spread(problem, x, lower, upper, free) -> float:
