@@ -23,6 +23,7 @@ __all__ = [
     "check_min",
     "check_true",
     "min_margin",
+    "max_margin",
     "status_codes",
     "STATUS_CODES",
     "Group",
@@ -128,30 +129,44 @@ def _status(margin: float, warn_margin: float) -> str:
     return "warn" if margin < warn_margin else "pass"
 
 
-#: Integer code of each status in arrays of many boards (worse is larger).
-STATUS_CODES = {"pass": 0, "warn": 1, "fail": 2}
+#: Integer code of each status in arrays of many boards (worse is larger): its index in
+#: :data:`STATUSES`.
+STATUS_CODES = {s: i for i, s in enumerate(STATUSES)}
 
 
 def status_codes(margin, warn_margin: float):
-    """:func:`_status` over an array of margins, as :data:`STATUS_CODES`."""
+    """:func:`_status` over an array of margins, as :data:`STATUS_CODES` (int8)."""
     import numpy as np
 
     m = np.asarray(margin, dtype=float)
-    fail = (m < 0) | np.isnan(m)
-    warn = ~fail & (m < warn_margin) & ~(np.isinf(m) & (m > 0))
-    return np.where(fail, 2, np.where(warn, 1, 0))
+    return np.where(np.isnan(m) | (m < 0), 2, np.where(m < warn_margin, 1, 0)).astype(np.int8)
+
+
+def _array_margin(excess, value, limit, at_zero):
+    import numpy as np
+
+    safe = np.where(limit != 0, np.abs(limit), 1.0)
+    with np.errstate(over="ignore", invalid="ignore"):  # as float arithmetic: inf, NaN
+        ratio = excess / safe
+    return np.where(limit != 0, ratio, np.where(at_zero, math.inf, -math.inf))
 
 
 def min_margin(value, limit):
     """The margin of :func:`check_min` (``value >= limit``) over arrays."""
     import numpy as np
 
-    value = np.asarray(value, dtype=float)
-    limit = np.broadcast_to(np.asarray(limit, dtype=float), value.shape)
-    safe = np.where(limit != 0, np.abs(limit), 1.0)
-    with np.errstate(over="ignore", invalid="ignore"):  # as float arithmetic: inf, NaN
-        ratio = (value - limit) / safe
-    return np.where(limit != 0, ratio, np.where(value >= 0, math.inf, -math.inf))
+    value, limit = np.broadcast_arrays(np.asarray(value, dtype=float),
+                                       np.asarray(limit, dtype=float))
+    return _array_margin(value - limit, value, limit, value >= 0)
+
+
+def max_margin(value, limit):
+    """The margin of :func:`check_max` (``value <= limit``) over arrays."""
+    import numpy as np
+
+    value, limit = np.broadcast_arrays(np.asarray(value, dtype=float),
+                                       np.asarray(limit, dtype=float))
+    return _array_margin(limit - value, value, limit, value <= 0)
 
 
 def check_max(id, value, limit, unit, source, message, *, warn_margin=0.10, **kw) -> Check:

@@ -22,7 +22,15 @@ from pinlib.buses import ppbatch as ppb
 from pinlib.buses import pptable
 from pinlib.buses.pushpull import evaluate_bus
 from pinlib.design import load_design
-from pinlib.result import STATUS_CODES, _status, check_min, min_margin, status_codes
+from pinlib.result import (
+    STATUS_CODES,
+    _status,
+    check_max,
+    check_min,
+    max_margin,
+    min_margin,
+    status_codes,
+)
 
 DATA = Path(__file__).parent / "data"
 DEMO = Path(__file__).resolve().parents[1] / "workbooks" / "designs" / "demo-board.toml"
@@ -176,6 +184,9 @@ def test_array_margins_and_statuses_follow_the_scalar_rules(value, limit, warn):
     assert (m == c.margin) or (math.isnan(m) and math.isnan(c.margin))
     assert int(status_codes(np.array([m]), warn)[0]) == STATUS_CODES[_status(m, warn)]
     assert STATUS_CODES[c.status] == int(status_codes(np.array([c.margin]), warn)[0])
+    c = check_max("x", value, limit, "s", "", "", warn_margin=warn)
+    m = float(max_margin(np.array([value]), limit)[0])
+    assert (m == c.margin) or (math.isnan(m) and math.isnan(c.margin))
 
 
 def test_replace_keeps_frozen_timing_records_usable_with_arrays(link):

@@ -41,6 +41,7 @@ from pinlib.design import Bus, Design, Device, Segment
 from pinlib.library.schema import Part
 from pinlib.physics import pullup as pu
 from pinlib.quantity import Threshold
+from pinlib.result import STATUSES, max_margin, min_margin, status_codes
 from pinlib.standards import i2c as i2c_std
 
 __all__ = [
@@ -57,8 +58,8 @@ __all__ = [
     "build",
 ]
 
-#: Status codes of :attr:`BatchCheck.status`, in order of severity.
-STATUS = ("pass", "warn", "fail")
+#: Status codes of :attr:`BatchCheck.status`, in order of severity (the index of each).
+STATUS = STATUSES
 
 #: Parts that load a line but read nothing on it (the engine's rule).
 _NOT_RECEIVERS = ("connector", "cable")
@@ -673,29 +674,6 @@ class BusBatch:
                 yield s.id, c
 
 
-def _m_max(value, limit):
-    """``check_max`` margin, elementwise: ``(limit - value) / |limit|``. [1]"""
-    value, limit = np.broadcast_arrays(np.asarray(value, dtype=float),
-                                       np.asarray(limit, dtype=float))
-    with np.errstate(divide="ignore", invalid="ignore"):
-        m = (limit - value) / np.abs(limit)
-    return np.where(limit != 0, m, np.where(value <= 0, np.inf, -np.inf))
-
-
-def _m_min(value, limit):
-    """``check_min`` margin, elementwise: ``(value - limit) / |limit|``. [1]"""
-    value, limit = np.broadcast_arrays(np.asarray(value, dtype=float),
-                                       np.asarray(limit, dtype=float))
-    with np.errstate(divide="ignore", invalid="ignore"):
-        m = (value - limit) / np.abs(limit)
-    return np.where(limit != 0, m, np.where(value >= 0, np.inf, -np.inf))
-
-
-def _status(margin, warn):
-    m = np.asarray(margin, dtype=float)
-    return np.where(np.isnan(m) | (m < 0), 2, np.where(m < warn, 1, 0)).astype(np.int8)
-
-
 class _Out:
     def __init__(self, seg_id: str, n: int):
         self.seg_id, self.n = seg_id, n
@@ -712,7 +690,7 @@ class _Out:
                                     (self.n, 1))
         if len(rows) == 1 and shape[1] == 1 and not isinstance(warn, (list, tuple)):
             m, v, lim = (np.broadcast_to(a, shape)[:, 0] for a in rows[0][:3])
-            self.add(id, signal, v, lim, m, _status(m, warn), unit)
+            self.add(id, signal, v, lim, m, status_codes(m, warn), unit)
             return
         ms = np.stack([np.broadcast_to(r[0], shape) for r in rows], axis=1)
         vs = np.stack([np.broadcast_to(r[1], shape) for r in rows], axis=1)
@@ -727,7 +705,7 @@ class _Out:
                                           if np.ndim(x) else x, (shape[0], 1))[:, 0]
                           for x in warn], axis=1)
             warn = np.take_along_axis(w, idx // shape[1], axis=1)[:, 0]
-        self.add(id, signal, value, limit, margin, _status(margin, warn), unit)
+        self.add(id, signal, value, limit, margin, status_codes(margin, warn), unit)
 
     def add(self, id, signal, value, limit, margin, status, unit=""):
         self.checks.append(BatchCheck(
@@ -760,16 +738,16 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     rp_lo, rp_hi = r_eff * (1 - tol), r_eff * (1 + tol)
     figs[ln.signal] = f = {"bus_capacitance": ln.cb, "pullup": r_eff}
     if lim.cb_max is not None:
-        out.pick("bus-capacitance", up, [(_m_max(ln.cb, lim.cb_max), ln.cb, lim.cb_max)], warn,
+        out.pick("bus-capacitance", up, [(max_margin(ln.cb, lim.cb_max), ln.cb, lim.cb_max)], warn,
                  "F")
     m_lo, m_hi = pu.pullup_margins(ln.pullup, ln.rp_min, ln.rp_max, tol, ln.r_parts)
     low = np.asarray(m_lo) <= np.asarray(m_hi)
     out.pick("pullup-window", up, [(
-        np.where(low, _m_min(rp_lo, ln.rp_min), _m_max(rp_hi, ln.rp_max)),
+        np.where(low, min_margin(rp_lo, ln.rp_min), max_margin(rp_hi, ln.rp_max)),
         np.where(low, rp_lo, rp_hi), np.where(low, ln.rp_min, ln.rp_max))], warn, "Ω")
     tr = pu.rise_time(rp_hi, ln.cb, ln.factor)
     f["rise_time"] = tr
-    out.pick("rise-time", up, [(_m_max(tr, lim.tr_max), tr, lim.tr_max)], warn, "s")
+    out.pick("rise-time", up, [(max_margin(tr, lim.tr_max), tr, lim.tr_max)], warn, "s")
     # -- low levels
     far = _far(s, ctx.segs, ctx.links[s.index], ln.signal)
     levels, offset_levels = [], []
@@ -804,13 +782,13 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
         vol_bus = np.max(np.stack([np.broadcast_to(lv[0], shape) for lv in levels]), axis=0)
         f["v_ol"] = _worst_max(vol_bus)
         if ln.receivers:
-            out.pick("v-ol", up, [(_m_max(vol_bus, r.v_il), vol_bus, r.v_il)
+            out.pick("v-ol", up, [(max_margin(vol_bus, r.v_il), vol_bus, r.v_il)
                                   for r in ln.receivers], warn, "V")
             vil_min = _reduce(np.min, [r.v_il for r in ln.receivers])
             nml = vil_min - vol_bus
             if lim.v_nl_rel is not None:
                 limit = lim.v_nl_rel * v
-                out.pick("noise-margin-low", up, [(_m_min(nml, limit), nml, limit)], warn, "V")
+                out.pick("noise-margin-low", up, [(min_margin(nml, limit), nml, limit)], warn, "V")
     if levels or offset_levels:
         rows = [(i, d) for _, i, d in levels + offset_levels if d is not None]
         if rows:
@@ -823,17 +801,17 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
                                              axis=1), k, axis=1)
             i_ol = np.take_along_axis(np.stack([np.broadcast_to(d.i_ol, shape)[:, 0]
                                                 for _, d in rows], axis=1), k, axis=1)
-            out.pick("sink-current", up, [(_m_max(im, i_ol), im, i_ol)], warn, "A")
+            out.pick("sink-current", up, [(max_margin(im, i_ol), im, i_ol)], warn, "A")
     # -- high level
     voh = pu.high_level(v, rp_hi, ln.leakage)
     if ln.receivers:
-        out.pick("v-oh", up, [(_m_min(voh, r.v_ih), voh, r.v_ih) for r in ln.receivers], warn,
+        out.pick("v-oh", up, [(min_margin(voh, r.v_ih), voh, r.v_ih) for r in ln.receivers], warn,
                  "V")
         vih_max = _reduce(np.max, [r.v_ih for r in ln.receivers])
         nmh = voh - vih_max
         if lim.v_nh_rel is not None:
             limit = lim.v_nh_rel * v
-            out.pick("noise-margin-high", up, [(_m_min(nmh, limit), nmh, limit)], warn, "V")
+            out.pick("noise-margin-high", up, [(min_margin(nmh, limit), nmh, limit)], warn, "V")
     # -- fall time
     v_lo, v_hi = lim.measuring_levels(v)
     falls = []
@@ -851,14 +829,14 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     if falls:
         tf = _reduce(np.max, falls)
         f["fall_time"] = tf
-        out.pick("fall-time", up, [(_m_max(tf, lim.tf_max), tf, lim.tf_max)], warn, "s")
+        out.pick("fall-time", up, [(max_margin(tf, lim.tf_max), tf, lim.tf_max)], warn, "s")
         mode = i2c_std.i2c_mode(lim.mode) if lim.protocol == "i2c" else None
         if mode is not None and mode.tf_min is not None:
             tf_min = np.asarray(mode.tf_min_at(np.asarray(v[:, -1:], dtype=float)))
             for d in ln.drivers:
                 t_of = d.tap.pin.t_of_min
                 if t_of is not None:
-                    out.pick("fall-time-min", up, [(_m_min(t_of, tf_min), t_of, tf_min)], warn,
+                    out.pick("fall-time-min", up, [(min_margin(t_of, tf_min), t_of, tf_min)], warn,
                              "s")
 
 
@@ -893,12 +871,12 @@ def _segment_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
         share = period / (lim.t_low + lim.t_high)
         t_low = t_low if t_low is not None else max(lim.t_low, lim.t_low * share)
         t_high = t_high if t_high is not None else max(lim.t_high, lim.t_high * share)
-    out.pick("scl-frequency", None, [(_m_max(clock, lim.f_max), clock, lim.f_max)], 0.0, "Hz")
+    out.pick("scl-frequency", None, [(max_margin(clock, lim.f_max), clock, lim.f_max)], 0.0, "Hz")
     slow = [ctx.parts.timing(d).f_max for d in seg.devices
             if not d.is_controller and not d.is_bridge and ctx.parts.timing(d).f_max is not None]
     if slow:
         f_dev = _reduce(np.min, slow)
-        out.pick("device-speed", None, [(_m_min(f_dev, clock), f_dev, clock)], 0.0, "Hz")
+        out.pick("device-speed", None, [(min_margin(f_dev, clock), f_dev, clock)], 0.0, "Hz")
     # -- SDA data setup
     tr_sda = figs["sda"]["rise_time"]
     rows = []
@@ -916,8 +894,8 @@ def _segment_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
     if rows:
         tvd = _reduce(np.max, rows)
         budget = t_low - tvd - tr_sda
-        out.pick("setup-time", None, [(_m_min(budget, lim.t_su_dat), budget, lim.t_su_dat)], warn,
-                 "s")
+        out.pick("setup-time", None,
+                 [(min_margin(budget, lim.t_su_dat), budget, lim.t_su_dat)], warn, "s")
     # -- voltage domains
     taps = [t for sig in od.SIGNALS for t in s.lines[sig].taps]
     rows, warns = [], []
@@ -925,7 +903,7 @@ def _segment_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
         if t.pin.abs_max is None:
             continue
         am = _corner(t.pin.abs_max, t, v, "min")
-        rows.append((_m_max(v, am), v, am))
+        rows.append((max_margin(v, am), v, am))
         follows = np.logical_and(not t.own, t.pin.abs_follows)
         warns.append(np.where(follows, 0.0, warn))
     if rows:
@@ -943,7 +921,7 @@ def _segment_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
         m_lo = (lo - s_min) / s_min
         m_hi = (s_max - hi) / s_max
         low_side = m_lo < m_hi
-        rows.append((np.where(low_side, _m_min(lo, s_min), _m_max(hi, s_max)),
+        rows.append((np.where(low_side, min_margin(lo, s_min), max_margin(hi, s_max)),
                      np.where(low_side, lo, hi), np.where(low_side, s_min, s_max)))
     if rows:
         out.pick("supply-range", None, rows, 0.0, "V")
@@ -978,7 +956,7 @@ def _segment_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
             continue
         tap = next(t for t in s.lines["sda"].taps if t.dev is d)
         off = _corner(Level.of(side.low_offset), tap, v, "max")
-        rows = [(_m_max(off, r.v_il), off, r.v_il) for sig in od.SIGNALS
+        rows = [(max_margin(off, r.v_il), off, r.v_il) for sig in od.SIGNALS
                 for r in s.lines[sig].receivers if r.tap.dev.ref != d.ref]
         if rows:
             out.pick("bridge-offset", None, rows, warn, "V")

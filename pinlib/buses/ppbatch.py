@@ -30,8 +30,9 @@ from typing import Any
 import numpy as np
 
 from pinlib.buses import pushpull as pp
-from pinlib.buses.odbatch import STATUS, BatchCheck
+from pinlib.buses.odbatch import BatchCheck
 from pinlib.design import Bus, Design
+from pinlib.result import STATUS_CODES
 
 __all__ = [
     "PROTOCOLS",
@@ -48,7 +49,6 @@ __all__ = [
 #: The protocols this module evaluates.
 PROTOCOLS = ("spi", "gpio")
 
-_CODE = {s: i for i, s in enumerate(STATUS)}
 
 
 def _rail_key(v: float, tol: float) -> tuple:
@@ -337,7 +337,7 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
             margin[at, j] = number_or_nan(c.margin)
             value[at, j] = number_or_nan(c.value)
             limit[at, j] = number_or_nan(c.limit)
-            status[at, j] = _CODE[c.status]
+            status[at, j] = STATUS_CODES[c.status]
     items: list[Any] = []
     for j, nm in enumerate(names):
         ec = nm["engine"]
