@@ -185,7 +185,7 @@ class LineTable:
                 _, mg, val, lim, code = plan
                 margin[j], value[j], limit[j], status[j] = mg, val, lim, code
             elif kind == "line":
-                _, sig, slots, warn, margin_rule, code = plan
+                _, sig, slots, margin_rule, code = plan
                 vals = got[sig]
                 for arr, slot in zip((margin, value, limit), slots, strict=True):
                     arr[j] = vals[:, slot]
@@ -194,7 +194,7 @@ class LineTable:
                 else:
                     status[j] = code
             else:  # a timing term of the budget
-                _, k, period, warn = plan
+                _, k, period = plan
                 t = terms[k]
                 value[j] = t.a * period + np.asarray(t.b, dtype=float)
                 limit[j] = t.required
@@ -430,12 +430,9 @@ def _plan(names, node_checks, labels, values, sa, bus, design) -> list | str:
         mgs = np.array([_num(c.margin) for c in at_nodes])
         c0 = at_nodes[0]
         if sig is None:
-            is_term = c0.id in ("copi-setup", "copi-hold", "cipo-setup", "cipo-hold",
-                                "cs-setup") and term_k < n_terms
-            if is_term:
-                if sa.terms[term_k].id != c0.id:
-                    return f"{nm['name']}: not the budget term expected there"
-                plans.append(("term", term_k, 1.0 / float(bus.clock), warn))
+            # evaluate_spi lists the budget's terms first, in order, then the f_max checks
+            if term_k < n_terms and sa.terms[term_k].id == c0.id:
+                plans.append(("term", term_k, 1.0 / float(bus.clock)))
                 term_k += 1
                 continue
             if len(codes) != 1 or len({_num(c.value) for c in at_nodes}) > 1:
@@ -461,7 +458,7 @@ def _plan(names, node_checks, labels, values, sa, bus, design) -> list | str:
             return f"{nm['name']}: its status moves, but not with its margin"
         if has_margin and not np.isfinite(mgs).all() and len(np.unique(mgs)) != 1:
             return f"{nm['name']}: a margin not finite at every node"
-        plans.append(("line", sig, tuple(slots), warn, by_margin, min(codes)))
+        plans.append(("line", sig, tuple(slots), by_margin, min(codes)))
     if term_k != n_terms:
         return "the budget's terms are not all checks"
     return plans
