@@ -33,9 +33,9 @@ import numpy as np
 from pinlib import messages as M
 from pinlib.buses import odbatch as ob
 from pinlib.buses import opendrain as od
-from pinlib.compare import can_serve
+from pinlib.compare import can_serve, positions
 from pinlib.design import Bus, Design, Device
-from pinlib.errors import DesignError, InputError, PinlibError
+from pinlib.errors import InputError, PinlibError
 from pinlib.library.schema import CATEGORIES, Part
 from pinlib.progress import progress_bar
 from pinlib.quantity import format_si
@@ -214,22 +214,6 @@ class Ranking:
 
 
 # ============================================================================ eligibility
-
-
-def positions(design: Design, ref: str) -> list[tuple[Bus, Device]]:
-    """Every (bus, device) where the reference designator sits.
-
-    Raises
-    ------
-    DesignError
-        When no device has that reference.
-    """
-    out = [(b, d) for b in design.buses for d in b.devices if d.ref == ref]
-    if not out:
-        refs = sorted({d.ref for b in design.buses for d in b.devices})
-        raise DesignError(M.NO_SUCH_REFERENCE, file=str(design.path or ""),
-                          field="REF", value=ref, hint="devices: " + ", ".join(refs))
-    return out
 
 
 def _per_bus(places) -> list[tuple[Bus, Device]]:

@@ -58,6 +58,7 @@ __all__ = [
     "part_values",
     "value_label",
     "can_serve",
+    "positions",
     "swap_refusals",
     "swapped_text",
     "FigureRow",
@@ -913,6 +914,24 @@ def _scl_drivers_elsewhere(device, bus) -> list[str]:
     return sorted(set(out))
 
 
+def positions(design, ref: str, *, field: str = "REF") -> list:
+    """Every (bus, device) where the reference designator sits.
+
+    Raises
+    ------
+    DesignError
+        When no device has that reference (``field`` names where it was given).
+    """
+    from pinlib.errors import DesignError
+
+    out = [(b, d) for b in design.buses for d in b.devices if d.ref == ref]
+    if not out:
+        refs = sorted({d.ref for b in design.buses for d in b.devices})
+        raise DesignError(M.NO_SUCH_REFERENCE, file=str(design.path or ""),
+                          field=field, value=ref, hint="devices: " + ", ".join(refs))
+    return out
+
+
 def swap_refusals(design, ref: str, part_id: str, *, field: str = "REF=PART") -> tuple[str, list]:
     """Why ``part_id`` cannot take the place of the part at ``ref`` in ``design``.
 
@@ -938,13 +957,7 @@ def swap_refusals(design, ref: str, part_id: str, *, field: str = "REF=PART") ->
     DesignError
         No device has that reference; LibraryError: no such part.
     """
-    from pinlib.errors import DesignError
-
-    places = [(b, d) for b in design.buses for d in b.devices if d.ref == ref]
-    if not places:
-        refs = sorted({d.ref for b in design.buses for d in b.devices})
-        raise DesignError(M.NO_SUCH_REFERENCE, file=str(design.path) if design.path else None,
-                          field=field, value=ref, hint="devices: " + ", ".join(refs))
+    places = positions(design, ref, field=field)
     new_part = design.library.get(part_id, field=field)
     if new_part.abstract:
         return places[0][1].part_id, [M.ABSTRACT_NOT_PLACED.format(part=part_id)]
