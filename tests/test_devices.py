@@ -1,4 +1,4 @@
-"""Contract tests of the curated built-in library (``devices/``).
+"""Contract tests of the curated built-in library (``pinlib/devices/``).
 
 The built-in library is data, not code, but every engine trusts it: these tests hold
 each part class to the format's rules (provenance on every value, worst-case limits,

@@ -57,8 +57,8 @@ DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"
 UM10204_RISE_FACTOR = 0.8473
 FAST_MODE_TR_MAX = 300e-9
 
-# from the part files of the demo (devices/controller/mcu-3v3.toml and
-# devices/memory/nor-flash-spi.toml, invented generic values)
+# from the part files of the demo (pinlib/devices/controller/mcu-3v3.toml and
+# pinlib/devices/memory/nor-flash-spi.toml, invented generic values)
 MCU_SCLK_EDGES = [(15e-12, 2.5e-9, 2.5e-9), (50e-12, 5e-9, 4.5e-9)]   # load, rise, fall
 MCU_T_VALID, MCU_T_SETUP = 8e-9, 6e-9
 FLASH_T_VALID, FLASH_T_SETUP = 7e-9, 2e-9

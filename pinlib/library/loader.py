@@ -1,4 +1,4 @@
-"""Loading part classes: the built-in ``devices/`` folder merged with team folders.
+"""Loading part classes: the built-in ``pinlib/devices/`` folder merged with team folders.
 
 Order of precedence, lowest first: the built-in library, then the folders of the
 ``PINLIB_LIBRARY`` environment variable (``os.pathsep``-separated), then folders a
@@ -40,8 +40,10 @@ __all__ = [
     "library_folders",
 ]
 
+#: The built-in library: package data inside pinlib (``pinlib/devices/``), so that an
+#: installed wheel carries it as a checkout does.  ``PINLIB_BUILTIN`` points elsewhere.
 BUILTIN_DIR = Path(os.environ.get("PINLIB_BUILTIN",
-                                  Path(__file__).resolve().parents[2] / "devices"))
+                                  Path(__file__).resolve().parents[1] / "devices"))
 
 _NOT_INHERITED = {"id", "extends", "abstract"}
 
