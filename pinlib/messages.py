@@ -298,7 +298,7 @@ NO_FINITE_SAMPLE = "no finite sample"
 UNKNOWN_LIMIT_KIND = "unknown limit kind"
 TOO_FEW_BINS = "too few bins"
 
-# ---------------------------------------------------------------- pinlib/widgets.py
+# ---------------------------------------------------------------- pinlib/widgets/
 NOT_A_LISTED_VALUE = "not a value of the {what}"
 UNKNOWN_SETTING = "unknown setting"
 OUTSIDE_CONTROL_RANGE = "outside the control's range"
@@ -361,7 +361,13 @@ MODULES = (
     "pinlib.whatif",
     "pinlib.plotdata",
     "pinlib.charts",
-    "pinlib.widgets",
+    "pinlib.widgets.common",
+    "pinlib.widgets.designdoc",
+    "pinlib.widgets.busbuilder",
+    "pinlib.widgets.lineexplorer",
+    "pinlib.widgets.spibudget",
+    "pinlib.widgets.recorder",
+    "pinlib.widgets.swaps",
     "pinlib.review",
     "pinlib.commands.check",
     "pinlib.commands.report",

@@ -287,7 +287,7 @@ def line(library):
 def test_line_svg_is_the_uncached_render(line):
     # derived from vl-convert's vegalite_to_svg of each whole spec: the widget's redraws,
     # which reuse the compiled layout, must give the same SVG as a render from scratch
-    from pinlib.widgets import _inline_svg
+    from pinlib.widgets.common import _inline_svg
 
     for length in (0.28, 0.30, 0.9, 0.28):
         line.set(series="auto", length=length)

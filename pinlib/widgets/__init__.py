@@ -1,0 +1,63 @@
+"""Workbench widgets for Jupyter: build a bus, explore a line, budget SPI timing, record
+part values, rerun a design after a substitution.
+
+Each class holds ipywidgets 8 controls and what it last computed.  ``.widget`` is the
+container to display; ``set(...)`` and a few named methods change the controls the way
+a user would (values in SI units), so the code path a knob takes is the one the unit
+tests drive, without a browser.
+
+Every figure comes from the engines.  A widget writes the design its controls describe
+(``pinlib.design/1`` text, built with tomlkit), loads it with
+:func:`pinlib.design.design_from_text` and evaluates it with :mod:`pinlib.check`; the
+arrays each chart draws come from :mod:`pinlib.plotdata` and the chart specifications
+from :mod:`pinlib.charts`.  Nothing here computes an engineering figure; it formats.
+
+Charts
+------
+A chart is an ``ipywidgets.HTML`` whose value is the chart as inline SVG, rendered by
+vl-convert (:func:`pinlib.charts.to_svg`).  A redraw replaces that value in one message,
+so the old chart stays on screen until the new one is there (no flicker, as there is when
+an ``Output`` is cleared and redrawn), and a chart whose specification did not change is
+not redrawn at all.  This is preferred over ``altair.JupyterChart`` because it needs no
+JavaScript beyond ipywidgets itself: it works offline, in any front end that shows
+ipywidgets (JupyterLab, Notebook 7, VS Code) with or without the anywidget extension,
+and in headless runs (nbclient, nbval), where the SVG is a string the tests can read.
+The price: no tooltips or zoom, and about 60 ms of rendering per chart.
+
+Exported pages
+--------------
+In an exported HTML page, widgets come alive only through the ipywidgets JavaScript,
+which such a page loads from a CDN.  For a page that must read offline, every class has
+:meth:`static_view`: the same charts and tables as plain HTML with the SVG inline.
+
+Modules
+-------
+``common`` (labels, layouts, tables, the chart view, the panel base class), ``designdoc``
+(design text and trace controls), and one module per workbench: ``busbuilder`` (01),
+``lineexplorer`` (02), ``spibudget`` (03), ``recorder`` (04), ``swaps`` (05).
+
+This package imports ipywidgets, and altair through :mod:`pinlib.charts`; the command line
+and :mod:`pinlib.check` never import it.
+"""
+
+from pinlib.widgets.busbuilder import BenchReading, BusBuilder
+from pinlib.widgets.common import ChartView, StaticView, checks_table, figures_table, find_file
+from pinlib.widgets.lineexplorer import LineExplorer
+from pinlib.widgets.recorder import PartRecorder
+from pinlib.widgets.spibudget import ClockLimit, SpiBudget
+from pinlib.widgets.swaps import SwapExplorer
+
+__all__ = [
+    "ChartView",
+    "StaticView",
+    "BenchReading",
+    "ClockLimit",
+    "BusBuilder",
+    "LineExplorer",
+    "SpiBudget",
+    "PartRecorder",
+    "SwapExplorer",
+    "find_file",
+    "figures_table",
+    "checks_table",
+]

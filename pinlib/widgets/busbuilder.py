@@ -1,0 +1,500 @@
+"""Workbench 01: start an I2C/SMBus design from library parts (:class:`BusBuilder`)."""
+
+from __future__ import annotations
+
+import math
+import os
+from dataclasses import dataclass
+from pathlib import Path
+
+import ipywidgets as W
+import tomlkit
+
+from pinlib import charts, plotdata
+from pinlib import messages as M
+from pinlib.check import check_design
+from pinlib.design import MODES, design_from_text
+from pinlib.errors import InputError, PinlibError
+from pinlib.library import load_library
+from pinlib.library.loader import Library
+from pinlib.quantity import format_si
+from pinlib.tomlfile import atomic_write, tomllib
+from pinlib.widgets.common import (
+    _LABEL,
+    _WIDE,
+    ChartView,
+    StaticView,
+    _caution_html,
+    _closest_option,
+    _e,
+    _e24_options,
+    _error_html,
+    _inline_error,
+    _note,
+    _notes_html,
+    _num,
+    _Panel,
+    _set_options,
+    _status_line,
+    checks_table,
+    figures_table,
+)
+from pinlib.widgets.designdoc import (
+    _design_doc,
+    _devices_array,
+    _inline,
+    _library_entries,
+    _load,
+    _team_folders,
+    _Trace,
+)
+
+# =========================================================================== bus builder
+
+
+@dataclass(frozen=True)
+class BenchReading:
+    """The bench panel's answer: a rise time measured on the board turned into Cb.
+
+    Attributes
+    ----------
+    t_measured : float
+        The rise time read on the oscilloscope. [s]
+    c_probe : float
+        The probe's capacitance. [F]
+    levels : tuple of float
+        The measuring levels as fractions of VDD. [1]
+    rp : float
+        The effective pull-up on the line (the engine's nominal value). [Ω]
+    cb : float
+        Bus capacitance without the probe. [F]
+    rise : float
+        The rise time between the same levels without the probe. [s]
+    cb_model : float
+        The engine's bus capacitance of the line, for comparison. [F]
+    """
+
+    t_measured: float
+    c_probe: float
+    levels: tuple
+    rp: float
+    cb: float
+    rise: float
+    cb_model: float
+
+
+class BusBuilder(_Panel):
+    """Start an I2C or SMBus design from the library's parts.
+
+    Pick a controller and peripherals (filtered by category, supply range and a further
+    pin function), set the supply, the mode, the trace and the pull-up (``auto`` or an
+    E24 value); the figures, the checks and the pull-up window chart (SDA) follow each
+    change.  The bench panel turns a rise time measured on the board, with the probe's
+    capacitance, back into the bus capacitance.  :meth:`save` writes the design file.
+
+    Parameters
+    ----------
+    library : Library, optional
+        The merged library; loaded from ``folders`` (and the built-in one) by default.
+    folders : iterable of paths
+        Team library folders (written into a saved design as its ``library``).
+    protocol : str
+        ``"i2c"`` or ``"smbus"``.
+    controller : str
+        Part id of the controller (the first controller offered when absent).
+    peripherals : iterable of str
+        Part ids placed as U2, U3...
+    supply : float
+        The pull-up rail. [V]
+    length : float
+        Trace length. [m]
+    title : str
+        The design's title.
+
+    Settings for :meth:`set` (SI units): ``protocol``, ``mode``, ``supply``,
+    ``supply_tolerance``, ``controller``, ``category``, ``fits_supply``, ``function``,
+    ``geometry``, ``length``, ``width``, ``height``, ``thickness``, ``er``,
+    ``capacitance_per_length``, ``delay_per_length``, ``extra_capacitance``, ``pullup``
+    (``"auto"`` or an E24 value), ``pullup_tolerance``, ``rise_measured``, ``c_probe``,
+    ``levels``, ``title``.
+
+    Attributes
+    ----------
+    design, result, bus_result : Design, DesignResult, BusResult
+        The design the controls describe and what the engine returned (None while the
+        controls describe no valid design; ``error`` then says why).
+    figures : dict of str to Figure
+        The bus's figures.
+    window_data : PullupWindowData
+        What the pull-up window chart draws.
+    window : ChartView
+        The pull-up window chart.
+    bench : BenchReading or None
+        The bench panel's answer (None until a rise time is entered).
+    text : str
+        The design file text.
+    """
+
+    signal = "sda"
+
+    def __init__(self, library: Library | None = None, *, folders=(), protocol: str = "i2c",
+                 controller: str = "mcu-3v3", peripherals=("eeprom-i2c",), supply: float = 3.3,
+                 length: float = 0.10, title: str = "New board (started in a workbook)"):
+        super().__init__()
+        self.folders = [Path(f) for f in folders]
+        self.library = library if library is not None else load_library(self.folders)
+        if library is not None and not self.folders:
+            self.folders = _team_folders(library)
+        self.design = self.result = self.bus_result = None
+        self.figures: dict = {}
+        self.window_data = None
+        self.bench: BenchReading | None = None
+        self.bench_error: PinlibError | None = None
+        self.text = ""
+        self.saved_path: Path | None = None
+        self._peripherals: list[tuple[str, str]] = []
+
+        parts = self._bus_parts()
+        cats = sorted({p.category for p in parts.values() if p.category != "controller"})
+        fns = sorted({f for p in parts.values() for f in p.functions()} -
+                     {"i2c-sda", "i2c-scl"})
+
+        self.title = W.Text(value=title, description="Title", style=_LABEL, layout=_WIDE)
+        self.protocol = W.ToggleButtons(options=["i2c", "smbus"], value=protocol,
+                                        description="Protocol", style=_LABEL)
+        self.mode = W.Dropdown(options=MODES[protocol], value=MODES[protocol][
+            1 if protocol == "i2c" else 0], description="Mode", style=_LABEL, layout=_WIDE)
+        self.supply = W.BoundedFloatText(value=supply, min=0.8, max=5.5, step=0.05,
+                                         description="Supply (V)", style=_LABEL, layout=_WIDE)
+        self.supply_tolerance = W.BoundedFloatText(value=5.0, min=0.0, max=20.0, step=0.5,
+                                                   description="Supply ± (%)", style=_LABEL,
+                                                   layout=_WIDE)
+        self.category = W.Dropdown(options=["any"] + cats, value="any",
+                                   description="Category", style=_LABEL, layout=_WIDE)
+        self.fits_supply = W.Checkbox(value=True, description="parts whose supply range "
+                                      "holds the rail", indent=False)
+        self.function = W.Dropdown(options=["any"] + fns, value="any",
+                                   description="Also offers", style=_LABEL, layout=_WIDE)
+        self.controller = W.Dropdown(options=[], description="Controller", style=_LABEL,
+                                     layout=_WIDE)
+        self.pick = W.Dropdown(options=[], description="Peripheral", style=_LABEL,
+                               layout=_WIDE)
+        self.add_button = W.Button(description="Add", layout=W.Layout(width="70px"))
+        self.placed = W.Select(options=[], rows=6, description="Placed", style=_LABEL,
+                               layout=_WIDE)
+        self.remove_button = W.Button(description="Remove", layout=W.Layout(width="70px"))
+        self.trace = _Trace(self, length_cm=length * 100.0, max_cm=200.0)
+        self.extra_capacitance = W.BoundedFloatText(value=0.0, min=0.0, max=1000.0, step=1.0,
+                                                    description="Extra C (pF)", style=_LABEL,
+                                                    layout=_WIDE)
+        self.pullup_mode = W.ToggleButtons(options=["auto", "fixed"], value="auto",
+                                           description="Pull-up", style=_LABEL)
+        self.pullup = W.SelectionSlider(options=_e24_options(100.0, 100e3), value=4700.0,
+                                        description="Rp (E24)", continuous_update=False,
+                                        style=_LABEL, layout=_WIDE)
+        self.pullup_tolerance = W.BoundedFloatText(value=1.0, min=0.0, max=20.0, step=0.5,
+                                                   description="Rp ± (%)", style=_LABEL,
+                                                   layout=_WIDE)
+        self.rise_measured = W.BoundedFloatText(value=0.0, min=0.0, max=1e6, step=1.0,
+                                                description="Rise (ns)", style=_LABEL,
+                                                layout=_WIDE)
+        self.c_probe = W.BoundedFloatText(value=10.0, min=0.0, max=1000.0, step=0.5,
+                                          description="Probe (pF)", style=_LABEL,
+                                          layout=_WIDE)
+        self.levels = W.Dropdown(options=[("30–70 %", (0.3, 0.7)), ("10–90 %", (0.1, 0.9)),
+                                          ("20–80 %", (0.2, 0.8))], value=(0.3, 0.7),
+                                 description="Measured", style=_LABEL, layout=_WIDE)
+        self.bench_html = W.HTML()
+        self.save_path = W.Text(value="", placeholder="board.toml", description="Save as",
+                                style=_LABEL, layout=_WIDE)
+        self.save_button = W.Button(description="Save", layout=W.Layout(width="70px"))
+        self.save_error = W.HTML()
+        self.window = ChartView()
+        self.figures_html = W.HTML()
+        self.checks_html = W.HTML()
+        self.notes_html = W.HTML()
+
+        self.protocol.observe(self._protocol_changed, names="value")
+        for c in (self.category, self.fits_supply, self.function, self.supply):
+            c.observe(self._filters_changed, names="value")
+        self._watch(self.mode, self.supply_tolerance, self.controller, self.extra_capacitance,
+                    self.pullup_mode, self.pullup, self.pullup_tolerance, self.title)
+        for c in (self.rise_measured, self.c_probe, self.levels):
+            c.observe(lambda change: self._bench(), names="value")
+        self.add_button.on_click(lambda _b: self.add_peripheral(self.pick.value))
+        self.remove_button.on_click(lambda _b: self.placed.value and
+                                    self.remove_peripheral(self.placed.value))
+        self.save_button.on_click(lambda _b: self._save_clicked())
+
+        self._choice("protocol", self.protocol)
+        self._setters["mode"] = self._set_mode
+        self._number("supply", self.supply)
+        self._number("supply_tolerance", self.supply_tolerance, 100.0)
+        self._choice("controller", self.controller)
+        self._choice("category", self.category)
+        self._setters["fits_supply"] = lambda v: setattr(self.fits_supply, "value", bool(v))
+        self._choice("function", self.function)
+        self._number("extra_capacitance", self.extra_capacitance, 1e12)
+        self._setters["pullup"] = self._set_pullup
+        self._number("pullup_tolerance", self.pullup_tolerance, 100.0)
+        self._number("rise_measured", self.rise_measured, 1e9)
+        self._number("c_probe", self.c_probe, 1e12)
+        self._choice("levels", self.levels)
+        self._setters["title"] = lambda v: setattr(self.title, "value", str(v))
+
+        with self._hold():
+            self._filters_changed()
+            if controller in [v for _, v in self.controller.options]:
+                self.controller.value = controller
+            for pid in peripherals:
+                self.add_peripheral(pid)
+        self.widget = self._layout()
+        self.update()
+
+    # ---------------------------------------------------------------- choices
+    def _bus_parts(self) -> dict:
+        """Parts that can sit on an open-drain bus: SDA and SCL pins, not a bridging part
+        (a translator splits the bus into segments, which this builder does not draw)."""
+        return {pid: p for pid, p in sorted(self.library.placeable().items())
+                if not p.sides and p.category != "cable" and p.pin_for("i2c-sda")
+                and p.pin_for("i2c-scl")}
+
+    def _fits(self, part, *, category: bool) -> bool:
+        if category and self.category.value != "any" and part.category != self.category.value:
+            return False
+        if self.fits_supply.value and part.supply is not None:
+            lo, hi = float(part.supply.min.at()), float(part.supply.max.at())
+            if not lo <= self.supply.value <= hi:
+                return False
+        return self.function.value == "any" or self.function.value in part.functions()
+
+    def _label(self, pid: str, part) -> str:
+        return f"{pid} — {part.title}"
+
+    def _filters_changed(self, change=None) -> None:
+        parts = self._bus_parts()
+        with self._hold():
+            ctl = [(self._label(k, p), k) for k, p in parts.items()
+                   if p.category == "controller" and self._fits(p, category=False)]
+            _set_options(self.controller, ctl, self.controller.value)
+            per = [(self._label(k, p), k) for k, p in parts.items()
+                   if self._fits(p, category=True)]
+            _set_options(self.pick, per, self.pick.value)
+        self._changed()
+
+    def _protocol_changed(self, change=None) -> None:
+        with self._hold():
+            modes = MODES[self.protocol.value]
+            _set_options(self.mode, list(modes), self.mode.value)
+        self._changed()
+
+    def _set_mode(self, value) -> None:
+        modes = MODES[self.protocol.value]
+        if value not in modes:
+            raise InputError(M.UNKNOWN_MODE, field="mode", value=value,
+                             expected="one of " + ", ".join(modes))
+        self.mode.value = value
+
+    def _set_pullup(self, value) -> None:
+        if isinstance(value, str) and value.strip().lower() == "auto":
+            self.pullup_mode.value = "auto"
+            return
+        self.pullup.value = _closest_option(self.pullup.options, value, "pullup",
+                                            "pull-up slider")
+        self.pullup_mode.value = "fixed"
+
+    def add_peripheral(self, part_id: str) -> str:
+        """Place a part on the bus; return its reference designator (U2, U3...)."""
+        self.library.get(part_id, field="peripheral")  # an unknown id names the closest
+        if part_id not in self._bus_parts():
+            raise InputError(M.PART_NOT_FOR_OPEN_DRAIN_BUS, field="peripheral",
+                             value=part_id, expected="a part with SDA and SCL pins (not a "
+                                                     "bridging part or a cable)")
+        used = [int(r[1:]) for r, _ in self._peripherals if r[1:].isdigit()] + [1]
+        ref = f"U{max(used) + 1}"
+        self._peripherals.append((ref, part_id))
+        self._refresh_placed()
+        self._changed()
+        return ref
+
+    def remove_peripheral(self, ref: str) -> None:
+        """Take a placed part off the bus by its reference designator."""
+        refs = [r for r, _ in self._peripherals]
+        if ref not in refs:
+            raise InputError(M.NO_PLACED_PART, field="ref", value=ref,
+                             expected=", ".join(refs) or "none placed")
+        self._peripherals = [(r, p) for r, p in self._peripherals if r != ref]
+        self._refresh_placed()
+        self._changed()
+
+    @property
+    def peripherals(self) -> list[tuple[str, str]]:
+        """The placed peripherals as (reference designator, part id)."""
+        return list(self._peripherals)
+
+    def _refresh_placed(self) -> None:
+        with self._hold():
+            self.placed.options = [(f"{r}  {p}", r) for r, p in self._peripherals]
+
+    # ---------------------------------------------------------------- the design
+    def design_text(self, relative_to: Path | None = None) -> str:
+        """The design file the controls describe (``pinlib.design/1``).
+
+        Parameters
+        ----------
+        relative_to : path, optional
+            The folder the file will be saved in: team library folders are written
+            relative to it.
+        """
+        doc = _design_doc(self.title.value.strip() or "Untitled board",
+                          "A design started in a pinlib workbook (BusBuilder).",
+                          _library_entries(self.folders, relative_to),
+                          self.trace.geometry())
+        bus = tomlkit.table()
+        bus.add("id", self.protocol.value)
+        bus.add("protocol", self.protocol.value)
+        bus.add("mode", self.mode.value)
+        bus.add("supply", f"{_num(self.supply.value)} V")
+        bus.add("supply_tolerance", f"{_num(self.supply_tolerance.value)} %")
+        bus.add("pullup", "auto" if self.pullup_mode.value == "auto" else
+                f"{_num(self.pullup.value)} Ω")
+        bus.add("pullup_tolerance", f"{_num(self.pullup_tolerance.value)} %")
+        bus.add("pullup_series", "E24")
+        bus.add("trace", _inline(self.trace.entry("trace")))
+        if self.extra_capacitance.value:
+            bus.add("extra_capacitance", f"{_num(self.extra_capacitance.value)} pF")
+        devices = []
+        if self.controller.value:
+            devices.append({"ref": "U1", "part": self.controller.value, "role": "controller"})
+        devices += [{"ref": r, "part": p} for r, p in self._peripherals]
+        bus.add("devices", _devices_array(devices))
+        aot = tomlkit.aot()
+        aot.append(bus)
+        doc.add(tomlkit.nl())
+        doc.add("bus", aot)
+        return tomlkit.dumps(doc)
+
+    def update(self) -> None:
+        """Rebuild the design from the controls, evaluate it, redraw."""
+        if self._quiet:
+            return
+        self.updates += 1
+        try:
+            text = self.design_text()
+            design = _load(text, self.library)
+            result = check_design(design)
+            window = plotdata.pullup_window_data(design.buses[0], design, signal=self.signal)
+        except PinlibError as err:
+            self.design = self.result = self.bus_result = None
+            self.figures, self.window_data = {}, None
+            self.figures_html.value = self.checks_html.value = self.notes_html.value = ""
+            self._failed(err, [self.window])
+            self._bench()
+            return
+        self.error = None
+        self.text, self.design, self.result = text, design, result
+        br = self.bus_result = result.buses[0]
+        self.figures = dict(br.figures)
+        self.window_data = window
+        with self._hold():
+            auto = self.pullup_mode.value == "auto"
+            self.pullup.disabled = auto
+            chosen = float(br.figures["pullup_resistor"].value)
+            if auto and any(math.isclose(v, chosen, rel_tol=1e-9) for _, v in
+                            self.pullup.options):
+                self.pullup.value = _closest_option(self.pullup.options, chosen, "pullup",
+                                                    "pull-up slider")
+        w = window
+        self.window.draw(lambda: charts.pullup_window(
+            w.cb, w.rp_min, w.rp_max, chosen_cb=w.chosen_cb, chosen_rp=w.chosen_rp,
+            title=f"Pull-up window, {w.signal.upper()}",
+            subtitle=(f"tr ≤ {format_si(w.tr_max, 's')}; Rp(min) {format_si(w.rp_min, 'Ω')}"
+                      + (f" set by {w.weakest}" if w.weakest else "")),
+            chosen_label=f"design: {format_si(w.chosen_rp, 'Ω')} at "
+                         f"{format_si(w.chosen_cb, 'F')}"))
+        self.status_html.value = _status_line(br, f"Bus {br.id} ({self.mode.value})")
+        self.figures_html.value = figures_table(self.figures)
+        self.checks_html.value = checks_table(br)
+        self.notes_html.value = _notes_html([br])
+        self._bench()
+
+    def _bench(self) -> None:
+        from pinlib.buses.opendrain import capacitance_from_rise
+
+        self.bench, self.bench_error = None, None
+        t = self.rise_measured.value * 1e-9
+        if self.window_data is None:
+            self.bench_html.value = _note("the bench panel needs a design that evaluates")
+            return
+        if t <= 0:
+            self.bench_html.value = _note("enter the rise time read on the oscilloscope")
+            return
+        w = self.window_data
+        lo, hi = self.levels.value
+        c_probe = self.c_probe.value * 1e-12
+        try:
+            cb, rise = capacitance_from_rise(t, w.chosen_rp, c_probe, lo=lo, hi=hi)
+        except PinlibError as err:
+            self.bench_error = err
+            self.bench_html.value = _inline_error(err)
+            return
+        self.bench = BenchReading(t, c_probe, (lo, hi), w.chosen_rp, float(cb), float(rise),
+                                  w.chosen_cb)
+        self.bench_html.value = (
+            f'<div style="font-size:12px">With Rp = {format_si(w.chosen_rp, "Ω")} (every '
+            f"pull-up on {w.signal.upper()} in parallel): bus capacitance without the probe "
+            f"<b>{format_si(cb, 'F')}</b> (the model's Cb: {format_si(w.chosen_cb, 'F')}); "
+            f"rise time without the probe <b>{format_si(rise, 's')}</b> "
+            f"({lo:.0%}–{hi:.0%}).</div>")
+
+    def save(self, path: str | os.PathLike) -> Path:
+        """Write the design file atomically, after loading it back as a check.
+
+        The text is loaded with :func:`pinlib.design.design_from_text` from where it will
+        be (its ``library`` folders resolved beside it) before anything is written; an
+        invalid design raises and leaves any existing file as it was.
+        """
+        path = Path(path)
+        text = self.design_text(relative_to=path.parent)
+        design_from_text(tomllib.loads(text), text, path)
+        atomic_write(path, text)
+        self.saved_path = path
+        return path
+
+    def _save_clicked(self) -> None:
+        try:
+            if not self.save_path.value.strip():
+                raise InputError(M.FILE_NAME_NEEDED, field="save as",
+                                 expected="a path such as board.toml")
+            path = self.save(self.save_path.value.strip())
+        except PinlibError as err:
+            self.save_error.value = _inline_error(err)
+            return
+        self.save_error.value = f'<span style="font-size:12px">saved {_e(path)}</span>'
+
+    def static_view(self) -> StaticView:
+        """The charts and tables as plain HTML, for exported pages."""
+        if self.bus_result is None:
+            return StaticView(_caution_html() + _error_html(self.error))
+        return StaticView(_caution_html() + self.status_html.value + self.window.html()
+                          + self.bench_html.value + self.figures_html.value
+                          + self.checks_html.value)
+
+    def _layout(self) -> W.Widget:
+        controls = W.VBox([
+            self.title, self.protocol, self.mode, self.supply, self.supply_tolerance,
+            W.HTML("<b>Parts</b>"), self.category, self.fits_supply, self.function,
+            self.controller, W.HBox([self.pick, self.add_button]),
+            W.HBox([self.placed, self.remove_button]),
+            W.HTML("<b>Trace</b>"), self.trace.box, self.extra_capacitance,
+            W.HTML("<b>Pull-up</b>"), self.pullup_mode, self.pullup, self.pullup_tolerance,
+            W.HTML("<b>Bench: a measured rise</b>"), self.rise_measured, self.c_probe,
+            self.levels, self.bench_html,
+            W.HTML("<b>Save</b>"), W.HBox([self.save_path, self.save_button]),
+            self.save_error,
+        ], layout=W.Layout(width="430px"))
+        outputs = W.VBox([self.status_html, self.window.widget, self.figures_html,
+                          self.checks_html, self.notes_html])
+        return W.VBox([self._header("Start a design: an I2C/SMBus bus from library parts"),
+                       W.HBox([controls, outputs])])
+

@@ -1,0 +1,325 @@
+"""Workbench 02: a push-pull line and its termination (:class:`LineExplorer`)."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import ipywidgets as W
+import numpy as np
+import tomlkit
+
+from pinlib import charts, plotdata
+from pinlib import messages as M
+from pinlib.buses.pushpull import evaluate_gpio, gpio_analyses
+from pinlib.check import design_result
+from pinlib.errors import InputError, PinlibError
+from pinlib.library import load_library
+from pinlib.library.loader import Library
+from pinlib.widgets.common import (
+    _LABEL,
+    _WIDE,
+    ChartView,
+    StaticView,
+    _caution_html,
+    _closest_option,
+    _e24_options,
+    _error_html,
+    _notes_html,
+    _num,
+    _Panel,
+    _set_options,
+    _status_line,
+    checks_table,
+    figures_table,
+)
+from pinlib.widgets.designdoc import (
+    _design_doc,
+    _devices_array,
+    _inline,
+    _load,
+    _Trace,
+)
+
+# =========================================================================== line explorer
+
+
+class LineExplorer(_Panel):
+    """A push-pull line: a driver, its receivers, the trace and a series resistor.
+
+    The line is evaluated as a one-line ``gpio`` bus by the push-pull engine.  Charts: the
+    driver's edge time against load with its datasheet points and the engine's operating
+    point (the far-end edge on the real line), and the far-end waveforms with the VIL/VIH
+    band, with and without the series resistor.
+
+    Parameters
+    ----------
+    library : Library, optional
+        The merged library; loaded from ``folders`` by default.
+    folders : iterable of paths
+        Team library folders.
+    driver : (str, str)
+        Part id and pin name of the driving output (a push-pull pin).
+    receivers : iterable of (str, str)
+        Part id and pin name of each receiving input.
+    supply : float
+        The rail of every part on the line. [V]
+    length : float
+        Trace length. [m]
+    series : str or float
+        ``"auto"``, ``"none"`` or an E24 resistance. [Ω]
+
+    Settings for :meth:`set` (SI units): ``driver_part``, ``driver_pin``, ``supply``,
+    ``geometry``, ``length``, ``width``, ``height``, ``thickness``, ``er``,
+    ``capacitance_per_length``, ``delay_per_length``, ``series`` (``"auto"``,
+    ``"none"`` or an E24 value), ``any_function``.
+
+    Attributes
+    ----------
+    design, result, line_result : the design, its result and the line's LineResult.
+    figures : dict of str to Figure
+        The line's figures.
+    edge_data, wave_data : EdgeLoadData, WaveformData
+        What the two charts draw.
+    edges, waves : ChartView
+        The charts.
+    """
+
+    signal = "net"
+    #: Samples per waveform on the chart: about one per 1.5 px of its 440 px width (each
+    #: trace's peak and dip are added, so the drawn overshoot is the measured one).
+    wave_points = 300
+
+    def __init__(self, library: Library | None = None, *, folders=(),
+                 driver=("mcu-3v3", "sclk"), receivers=(("display-controller-spi", "sclk"),),
+                 supply: float = 3.3, length: float = 0.28, series="auto"):
+        super().__init__()
+        self.folders = [Path(f) for f in folders]
+        self.library = library if library is not None else load_library(self.folders)
+        self.design = self.result = self.line_result = None
+        self.figures: dict = {}
+        self.edge_data = self.wave_data = None
+        self.text = ""
+        self._receivers: list[tuple[str, str, str]] = []   # (ref, part, pin)
+
+        drivers = self._driver_parts()
+        self.driver_part = W.Dropdown(options=[(f"{k} — {p.title}", k) for k, p in
+                                               drivers.items()],
+                                      description="Driver", style=_LABEL, layout=_WIDE)
+        self.driver_pin = W.Dropdown(options=[], description="Output pin", style=_LABEL,
+                                     layout=_WIDE)
+        self.any_function = W.Checkbox(value=False, description="receivers of any pin "
+                                       "function", indent=False)
+        self.pick = W.Dropdown(options=[], description="Receiver", style=_LABEL, layout=_WIDE)
+        self.add_button = W.Button(description="Add", layout=W.Layout(width="70px"))
+        self.placed = W.Select(options=[], rows=5, description="Receivers", style=_LABEL,
+                               layout=_WIDE)
+        self.remove_button = W.Button(description="Remove", layout=W.Layout(width="70px"))
+        self.supply = W.BoundedFloatText(value=supply, min=0.8, max=5.5, step=0.05,
+                                         description="Supply (V)", style=_LABEL, layout=_WIDE)
+        self.trace = _Trace(self, length_cm=length * 100.0, max_cm=200.0, min_cm=0.5)
+        self.series_mode = W.ToggleButtons(options=["auto", "none", "fixed"], value="auto",
+                                           description="Series R", style=_LABEL)
+        self.series = W.SelectionSlider(options=_e24_options(1.0, 1000.0), value=33.0,
+                                        description="Rs (E24)", continuous_update=False,
+                                        style=_LABEL, layout=_WIDE)
+        self.edges = ChartView()
+        self.waves = ChartView()
+        self.figures_html = W.HTML()
+        self.checks_html = W.HTML()
+        self.notes_html = W.HTML()
+
+        self.driver_part.observe(self._driver_changed, names="value")
+        self.driver_pin.observe(self._pin_changed, names="value")
+        self.any_function.observe(self._pin_changed, names="value")
+        self._watch(self.supply, self.series_mode, self.series)
+        self.add_button.on_click(lambda _b: self.pick.value and
+                                 self.add_receiver(*self.pick.value))
+        self.remove_button.on_click(lambda _b: self.placed.value and
+                                    self.remove_receiver(self.placed.value))
+        self._choice("driver_part", self.driver_part)
+        self._choice("driver_pin", self.driver_pin)
+        self._setters["any_function"] = lambda v: setattr(self.any_function, "value", bool(v))
+        self._number("supply", self.supply)
+        self._setters["series"] = self._set_series
+
+        with self._hold():
+            part, pin = driver
+            if part in drivers:
+                self.driver_part.value = part
+            self._driver_changed()
+            if pin in [v for _, v in self.driver_pin.options]:
+                self.driver_pin.value = pin
+            self._pin_changed()
+            self._set_series(series)
+            for rpart, rpin in receivers:
+                self.add_receiver(rpart, rpin)
+        self.widget = self._layout()
+        self.update()
+
+    def _driver_parts(self) -> dict:
+        return {pid: p for pid, p in sorted(self.library.placeable().items())
+                if not p.sides and p.category != "cable"
+                and any(pin.drive == "push-pull" for pin in p.pins.values())}
+
+    def _driver_changed(self, change=None) -> None:
+        part = self.library.parts.get(self.driver_part.value)
+        pins = [] if part is None else [
+            (f"{n} ({pin.function})", n) for n, pin in part.pins.items()
+            if pin.drive == "push-pull"]
+        with self._hold():
+            _set_options(self.driver_pin, pins, self.driver_pin.value)
+        self._pin_changed()
+
+    def _pin_changed(self, change=None) -> None:
+        part = self.library.parts.get(self.driver_part.value)
+        fn = part.pins[self.driver_pin.value].function if part and self.driver_pin.value \
+            else None
+        options = []
+        for pid, p in sorted(self.library.placeable().items()):
+            if p.sides or p.category == "cable":
+                continue
+            for name, pin in p.pins.items():
+                if pin.drive == "input" and (self.any_function.value or pin.function == fn):
+                    options.append((f"{pid}: {name} ({pin.function})", (pid, name)))
+        with self._hold():
+            _set_options(self.pick, options, self.pick.value)
+        self._changed()
+
+    def _set_series(self, value) -> None:
+        if isinstance(value, str) and value.strip().lower() in ("auto", "none"):
+            self.series_mode.value = value.strip().lower()
+            return
+        self.series.value = _closest_option(self.series.options, value, "series",
+                                            "series resistor slider")
+        self.series_mode.value = "fixed"
+
+    def add_receiver(self, part_id: str, pin: str) -> str:
+        """Place a receiving input on the line; return its reference designator."""
+        part = self.library.get(part_id, field="receiver")
+        if pin not in part.pins or part.pins[pin].drive != "input":
+            raise InputError(M.NOT_AN_INPUT_PIN, field="receiver pin", value=pin,
+                             expected=", ".join(n for n, p in part.pins.items()
+                                                if p.drive == "input") or "none")
+        used = [int(r[1:]) for r, _, _ in self._receivers if r[1:].isdigit()] + [1]
+        ref = f"U{max(used) + 1}"
+        self._receivers.append((ref, part_id, pin))
+        with self._hold():
+            self.placed.options = [(f"{r}  {p}: {n}", r) for r, p, n in self._receivers]
+        self._changed()
+        return ref
+
+    def remove_receiver(self, ref: str) -> None:
+        """Take a receiver off the line by its reference designator."""
+        refs = [r for r, _, _ in self._receivers]
+        if ref not in refs:
+            raise InputError(M.NO_PLACED_PART, field="ref", value=ref,
+                             expected=", ".join(refs) or "none placed")
+        self._receivers = [x for x in self._receivers if x[0] != ref]
+        with self._hold():
+            self.placed.options = [(f"{r}  {p}: {n}", r) for r, p, n in self._receivers]
+        self._changed()
+
+    @property
+    def receivers(self) -> list[tuple[str, str, str]]:
+        """The receivers as (reference designator, part id, pin)."""
+        return list(self._receivers)
+
+    def design_text(self) -> str:
+        """The design file the controls describe: one ``gpio`` bus with one line."""
+        doc = _design_doc("Push-pull line (explored in a workbook)",
+                          "A push-pull line explored in a pinlib workbook (LineExplorer).",
+                          [], self.trace.geometry())
+        bus = tomlkit.table()
+        bus.add("id", "line")
+        bus.add("protocol", "gpio")
+        bus.add("supply", f"{_num(self.supply.value)} V")
+        devices = [{"ref": "U1", "part": self.driver_part.value, "role": "controller",
+                    "pin": self.driver_pin.value}]
+        devices += [{"ref": r, "part": p, "pin": n} for r, p, n in self._receivers]
+        bus.add("devices", _devices_array(devices))
+        entry = self.trace.entry("trace")
+        mode = self.series_mode.value
+        entry["series_resistor"] = mode if mode != "fixed" else f"{_num(self.series.value)} Ω"
+        lines = tomlkit.table()
+        lines.add(self.signal, _inline(entry))
+        bus.add("lines", lines)
+        aot = tomlkit.aot()
+        aot.append(bus)
+        doc.add(tomlkit.nl())
+        doc.add("bus", aot)
+        return tomlkit.dumps(doc)
+
+    def update(self) -> None:
+        """Rebuild the line from the controls, evaluate it, redraw both charts."""
+        if self._quiet:
+            return
+        self.updates += 1
+        try:
+            text = self.design_text()
+            design = _load(text, self.library)
+            bus = design.buses[0]
+            solved = gpio_analyses(bus, design)  # the line solved once, for checks and charts
+            result = design_result(design, [evaluate_gpio(bus, design, analysis=solved)])
+            edge = plotdata.edge_vs_load_data(bus, design, self.signal, analysis=solved)
+            wave = plotdata.waveform_data(bus, design, self.signal, analysis=solved,
+                                          points=self.wave_points)
+        except PinlibError as err:
+            self.design = self.result = self.line_result = None
+            self.figures, self.edge_data, self.wave_data = {}, None, None
+            self.figures_html.value = self.checks_html.value = self.notes_html.value = ""
+            self._failed(err, [self.edges, self.waves])
+            return
+        self.error = None
+        self.text, self.design, self.result = text, design, result
+        br = result.buses[0]
+        self.line_result = br.lines[0]
+        self.figures = dict(self.line_result.figures)
+        self.edge_data, self.wave_data = edge, wave
+        self._draw_edges(edge)
+        self._draw_waves(wave)
+        self.status_html.value = _status_line(br, f"Line from {edge.driver} "
+                                                  f"({self.driver_part.value} "
+                                                  f"{self.driver_pin.value})")
+        self.figures_html.value = figures_table(self.figures)
+        self.checks_html.value = checks_table(br)
+        self.notes_html.value = _notes_html([br, self.line_result])
+
+    def _draw_edges(self, e) -> None:
+        self.edges.draw(lambda: charts.spec(
+            charts.edge_vs_load, e.loads, np.vstack(list(e.curves.values())),
+            series=list(e.curves),
+            points=e.points if len(e.points[0]) else None,
+            operating=(e.operating[0], e.operating[1], f"far end ({e.model} line)"),
+            edge_label="Edge time", title=f"Edge time against load: {e.driver}",
+            subtitle="driver model into a lumped load; 10–90 % unless a curve says 20-80"))
+
+    def _draw_waves(self, w) -> None:
+        if not w.receivers:
+            self.waves.clear("no chart: " + "; ".join(w.notes))
+            return
+        self.waves.draw(lambda: charts.spec(
+            charts.waveforms, w.t, w.traces, v_il=w.v_il, v_ih=w.v_ih, vdd=w.vdd,
+            title="Far-end waveforms",
+            subtitle="at " + ", ".join(w.receivers)))
+
+    def static_view(self) -> StaticView:
+        """The charts and tables as plain HTML, for exported pages."""
+        if self.line_result is None:
+            return StaticView(_caution_html() + _error_html(self.error))
+        return StaticView(_caution_html() + self.status_html.value + self.edges.html()
+                          + self.waves.html() + self.figures_html.value
+                          + self.checks_html.value)
+
+    def _layout(self) -> W.Widget:
+        controls = W.VBox([
+            self.driver_part, self.driver_pin, self.supply,
+            W.HTML("<b>Receivers</b>"), self.any_function, W.HBox([self.pick, self.add_button]),
+            W.HBox([self.placed, self.remove_button]),
+            W.HTML("<b>Trace</b>"), self.trace.box,
+            W.HTML("<b>Termination</b>"), self.series_mode, self.series,
+        ], layout=W.Layout(width="430px"))
+        outputs = W.VBox([self.status_html, self.edges.widget, self.waves.widget,
+                          self.figures_html, self.checks_html, self.notes_html])
+        return W.VBox([self._header("A push-pull line and its termination"),
+                       W.HBox([controls, outputs])])
+

@@ -1,0 +1,231 @@
+"""Workbench 03: the timing budget of an SPI bus (:class:`SpiBudget`)."""
+
+from __future__ import annotations
+
+import copy
+import math
+from dataclasses import dataclass
+
+import ipywidgets as W
+
+from pinlib import charts, plotdata
+from pinlib import messages as M
+from pinlib.design import Design, design_from_text, load_design
+from pinlib.errors import InputError, PinlibError
+from pinlib.quantity import format_si
+from pinlib.report import format_value
+from pinlib.result import BusResult
+from pinlib.tomlfile import tomllib
+from pinlib.widgets.common import (
+    _CELL,
+    _LABEL,
+    _NUM,
+    _WIDE,
+    ChartView,
+    StaticView,
+    _caution_html,
+    _e,
+    _error_html,
+    _notes_html,
+    _num,
+    _Panel,
+    _status_line,
+    checks_table,
+    find_file,
+)
+
+# =========================================================================== SPI budget
+
+
+@dataclass(frozen=True)
+class ClockLimit:
+    """The highest clock one requirement allows on its own.
+
+    Attributes
+    ----------
+    what : str
+        The requirement: ``"copi-setup U7"``, ``"edge-time sclk"``, ``"f_max U1"``. [1]
+    clock : float
+        The highest clock it allows alone (:func:`pinlib.buses.spi.max_clock` of its
+        term). [Hz]
+    source : str
+        Where its limit comes from. [1]
+    """
+
+    what: str
+    clock: float
+    source: str
+
+
+class SpiBudget(_Panel):
+    """The timing budget of an SPI bus of a design: clock and mode, bars, max_clock.
+
+    Parameters
+    ----------
+    design : path or Design
+        The design (a path may be relative to the working folder or a folder above).
+    bus : str, optional
+        The SPI bus's id; the design's first SPI bus by default.
+    folders : iterable of paths
+        Extra team library folders.
+
+    Settings for :meth:`set`: ``bus``, ``clock`` [Hz], ``spi_mode`` (0–3).
+
+    Attributes
+    ----------
+    design, bus_result : the design at the chosen clock and mode, and its bus's result.
+    figures : dict of str to Figure
+        The bus's figures (``max_clock``, the worst margins).
+    budget_data : TimingBudgetData
+        What the budget chart draws.
+    limits : list of ClockLimit
+        Each requirement's own highest clock, lowest first: ``limits[0]`` is what sets
+        ``max_clock``.
+    chart : ChartView
+        The budget bars.
+    """
+
+    def __init__(self, design, bus: str | None = None, *, folders=()):
+        super().__init__()
+        if isinstance(design, Design):
+            base = design
+        else:
+            base = load_design(find_file(design), library_folders=folders)
+        self.base = base
+        self.library = base.library
+        self._data = tomllib.loads(base.text)
+        spi = [b.id for b in base.buses if b.protocol == "spi"]
+        if not spi:
+            raise InputError(M.NO_SPI_BUS, field="bus",
+                             file=str(base.path) if base.path else None)
+        bus = bus or spi[0]
+        if bus not in spi:
+            raise InputError(M.NO_SPI_BUS_OF_ID, field="bus", value=bus,
+                             expected=", ".join(spi))
+        self.design = self.bus_result = self.analysis = self.budget_data = None
+        self.figures: dict = {}
+        self.limits: list[ClockLimit] = []
+        self.bus = W.Dropdown(options=spi, value=bus, description="Bus", style=_LABEL,
+                              layout=_WIDE)
+        self.clock = W.BoundedFloatText(value=1.0, min=0.001, max=1000.0, step=0.5,
+                                        description="Clock (MHz)", style=_LABEL, layout=_WIDE)
+        self.spi_mode = W.ToggleButtons(options=[0, 1, 2, 3], value=0, description="SPI mode",
+                                        style=_LABEL)
+        self.chart = ChartView()
+        self.max_html = W.HTML()
+        self.limits_html = W.HTML()
+        self.checks_html = W.HTML()
+        self.notes_html = W.HTML()
+        self.bus.observe(self._bus_changed, names="value")
+        self._watch(self.clock, self.spi_mode)
+        self._choice("bus", self.bus)
+        self._number("clock", self.clock, 1e-6)
+        self._choice("spi_mode", self.spi_mode)
+        self._bus_changed()
+        self.widget = W.VBox([self._header("SPI timing budget"), W.HBox([
+            W.VBox([self.bus, self.clock, self.spi_mode, self.max_html, self.limits_html],
+                   layout=W.Layout(width="430px")),
+            W.VBox([self.status_html, self.chart.widget, self.checks_html, self.notes_html])])])
+
+    def _bus_changed(self, change=None) -> None:
+        b = self.base.bus(self.bus.value)
+        with self._hold():
+            self.clock.value = float(b.clock) * 1e-6
+            self.spi_mode.value = int(b.spi_mode)
+        self._changed()
+
+    def _bus_index(self) -> int:
+        return next(i for i, b in enumerate(self._data["bus"]) if b.get("id") == self.bus.value)
+
+    def design_data(self) -> dict:
+        """The design's data with the chosen bus's clock and mode as the controls say."""
+        data = copy.deepcopy(self._data)
+        raw = data["bus"][self._bus_index()]
+        raw["clock"] = f"{_num(self.clock.value)} MHz"
+        raw["spi_mode"] = int(self.spi_mode.value)
+        return data
+
+    def update(self) -> None:
+        """Evaluate the bus at the chosen clock and mode; redraw the budget."""
+        from pinlib.buses.spi import evaluate_spi, spi_analysis
+
+        if self._quiet:
+            return
+        self.updates += 1
+        try:
+            design = design_from_text(self.design_data(), self.base.text, self.base.path,
+                                      library=self.library)
+            bus = design.bus(self.bus.value)
+            sa = spi_analysis(bus, design)
+            br = evaluate_spi(bus, design, analysis=sa)  # the lines solved once, not twice
+            tb = plotdata.timing_budget_data(bus, design, analysis=sa) if sa.terms else None
+        except PinlibError as err:
+            self.design = self.bus_result = self.analysis = self.budget_data = None
+            self.figures, self.limits = {}, []
+            self._failed(err, [self.chart])
+            return
+        self.error = None
+        self.design, self.bus_result, self.analysis, self.budget_data = design, br, sa, tb
+        self.figures = dict(br.figures)
+        self.limits = self._limits(sa, br)
+        if tb is None:
+            self.chart.clear("no timing requirement to draw (no peripheral with the signals "
+                             "the budget needs)")
+        else:
+            self.chart.draw(lambda: charts.spec(
+                charts.timing_budget, tb.rows, available=tb.available, margins=tb.margins,
+                status=tb.status,
+                title=f"SPI timing budget, {bus.id} at {format_si(tb.clock, 'Hz')}",
+                subtitle=f"SPI mode {bus.spi_mode}; the tick is the time available"))
+        self.status_html.value = _status_line(br, f"Bus {br.id} at "
+                                                  f"{format_si(bus.clock, 'Hz')}")
+        self._show_limits()
+        self.checks_html.value = checks_table(br)
+        self.notes_html.value = _notes_html([br] + list(br.lines))
+
+    @staticmethod
+    def _limits(sa, br: BusResult) -> list[ClockLimit]:
+        """Each requirement's own highest clock, by the engine's own closed form."""
+        from pinlib.buses.pushline import EDGE_FRACTION
+        from pinlib.buses.spi import max_clock
+
+        out = []
+        for t in sa.terms:
+            k = t.required - t.b
+            k = k if math.isfinite(k) else math.inf
+            out.append(ClockLimit(f"{t.id} {t.subject}", float(max_clock([t.a], [k])),
+                                  t.source or "not recorded by the part: taken as 0"))
+        for sig, edge in sa.edge_terms:
+            ln = next((x for x in br.lines if x.signal == sig), None)
+            chk = ln.check("edge-time") if ln is not None else None
+            out.append(ClockLimit(f"edge-time {sig}",
+                                  float(max_clock([EDGE_FRACTION],
+                                                  [edge if math.isfinite(edge) else math.inf])),
+                                  chk.source if chk is not None else ""))
+        for ref, f, source in sa.f_limits:
+            out.append(ClockLimit(f"f_max {ref}", float(f), source))
+        return sorted(out, key=lambda x: x.clock)
+
+    def _show_limits(self) -> None:
+        f = self.figures.get("max_clock")
+        top = self.limits[0] if self.limits else None
+        text = f"Highest clock: <b>{_e(format_value(f.value, f.unit))}</b>" if f else ""
+        if top is not None:
+            text += f", set by <b>{_e(top.what)}</b> ({_e(top.source)})"
+        self.max_html.value = f'<div style="font-size:13px;margin:4px 0">{text}</div>'
+        rows = "".join(f'<tr><td style="{_CELL}">{_e(x.what)}</td>'
+                       f'<td style="{_NUM}">{_e(format_value(x.clock, "Hz"))}</td></tr>'
+                       for x in self.limits[:8])
+        self.limits_html.value = (
+            '<table style="border-collapse:collapse;font-size:12px">'
+            '<caption style="text-align:left;font-weight:700">Each requirement\'s own '
+            f'highest clock</caption>{rows}</table>')
+
+    def static_view(self) -> StaticView:
+        """The chart and tables as plain HTML, for exported pages."""
+        if self.bus_result is None:
+            return StaticView(_caution_html() + _error_html(self.error))
+        return StaticView(_caution_html() + self.status_html.value + self.max_html.value
+                          + self.chart.html() + self.limits_html.value
+                          + self.checks_html.value)
+
