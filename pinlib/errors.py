@@ -18,6 +18,7 @@ __all__ = [
     "LibraryError",
     "DesignError",
     "WriteError",
+    "MissingExtraError",
     "ValidityWarning",
     "FitWarning",
 ]
@@ -130,6 +131,15 @@ class DesignError(InputError):
 
 class WriteError(PinlibError, OSError):
     """A file could not be written; the old file is left whole."""
+
+
+class MissingExtraError(PinlibError, ModuleNotFoundError):
+    """A feature needs an optional part of pinlib that is not installed.
+
+    The message names the extra to install (``pip install 'pinlib[notebook]'``);
+    :func:`pinlib.extras.need` raises it.  As a ``ModuleNotFoundError`` it is still
+    caught by code that expects a failed import.
+    """
 
 
 class ValidityWarning(UserWarning):

@@ -330,6 +330,13 @@ MONTE_CARLO_UNAVAILABLE = "the Monte Carlo engine is not available in this pinli
 REPORT_TARGET_IS_FOLDER = "the report target is a folder"
 REPORT_FOLDER_MISSING = "the report's folder does not exist"
 
+# ---------------------------------------------------------------- pinlib/extras.py, demo
+NEEDS_EXTRA = "{feature}: the '{extra}' extra of pinlib is not installed ({module} is missing)"
+INSTALL_EXTRA = "install it with: pip install 'pinlib[{extra}]'"
+DEMO_FILES_MISSING = "the demo files are not part of this installation of pinlib"
+DEMO_WOULD_OVERWRITE = "the folder already holds {n} of the demo's files ({names})"
+DEMO_FORCE_HINT = "--force overwrites them, or name another folder"
+
 #: The modules whose raise sites, warnings and report sentences take their texts from here.
 MODULES = (
     "pinlib.tomlfile",
@@ -372,6 +379,8 @@ MODULES = (
     "pinlib.commands.check",
     "pinlib.commands.report",
     "pinlib.commands.candidates",
+    "pinlib.commands.demo",
+    "pinlib.extras",
 )
 
 

@@ -1779,6 +1779,61 @@ def _(env):
     return env.cli("report", str(path), "--md", str(env.tmp / "none" / "r.md"))
 
 
+# ---------------------------------------------------------------- pinlib/extras.py, demo
+def _missing_widgets(env):
+    import sys
+
+    from pinlib import extras
+
+    env.monkeypatch.setitem(sys.modules, "ipywidgets", None)  # as if not installed
+    return _fails(lambda e: extras.need("ipywidgets", extra="notebook",
+                                        feature="the workbook widgets"), env)
+
+
+@case("NEEDS_EXTRA", M.NEEDS_EXTRA.format(feature="the workbook widgets", extra="notebook",
+                                          module="ipywidgets"))
+def _(env):
+    return _missing_widgets(env)
+
+
+@case("INSTALL_EXTRA", M.INSTALL_EXTRA.format(extra="notebook"))
+def _(env):
+    return _missing_widgets(env).message
+
+
+def _demo_twice(env):
+    assert main(["demo", str(env.tmp / "demo")]) == 0
+    env.capsys.readouterr()
+    return env.cli("demo", str(env.tmp / "demo"))
+
+
+def _demo_count():
+    from pinlib.commands import demo
+
+    return len(demo.demo_files(demo.source_folder()))
+
+
+@case("DEMO_FILES_MISSING")
+def _(env):
+    from pinlib.commands import demo
+
+    # a package with no workbooks beside it or above it
+    env.monkeypatch.setattr(demo, "__file__", str(env.tmp / "pinlib" / "commands" / "demo.py"))
+    return env.cli("demo", str(env.tmp / "demo"))
+
+
+@case("DEMO_WOULD_OVERWRITE", lambda: M.DEMO_WOULD_OVERWRITE.format(
+    n=_demo_count(),
+    names="01-start-a-design.ipynb, 02-push-pull-line.ipynb, 03-spi-timing.ipynb, ..."))
+def _(env):
+    return _demo_twice(env)
+
+
+@case("DEMO_FORCE_HINT")
+def _(env):
+    return _demo_twice(env)
+
+
 @pytest.mark.parametrize(("name", "expected", "trigger"), CASES)
 def test_message(name, expected, trigger, tmp_path, monkeypatch, capsys):
     text = getattr(M, name)
