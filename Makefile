@@ -2,31 +2,38 @@
 PY ?= python3
 VENV := .venv
 BIN := $(VENV)/bin
-STAMP := $(VENV)/.installed
+# one stamp per install: the core (what `pinlib check` and `pinlib report` need), then
+# the test and notebook extras on top of it
+CORE := $(VENV)/.installed-core
+FULL := $(VENV)/.installed-test
 DEMO := workbooks/designs/demo-board.toml
+PACKAGING := pyproject.toml setup.py MANIFEST.in
 
 .PHONY: demo test bench lint clean
 
-$(STAMP): pyproject.toml
+# compat mode: the checkout goes on sys.path through a .pth file, as an installed
+# package would be found, rather than through an import hook on every start
+$(CORE): $(PACKAGING)
 	test -x $(BIN)/python || $(PY) -m venv $(VENV)
 	$(BIN)/python -m pip install -q --upgrade pip
-	# compat mode: the checkout goes on sys.path through a .pth file, as an installed
-	# package would be found, rather than through an import hook on every start
+	$(BIN)/python -m pip install -q -e . --config-settings editable_mode=compat
+	touch $(CORE)
+
+$(FULL): $(CORE)
 	$(BIN)/python -m pip install -q -e ".[test,notebook]" --config-settings editable_mode=compat
-	touch $(STAMP)
+	touch $(FULL)
 
-demo: $(STAMP)
-	@if [ -f $(DEMO) ]; then $(BIN)/pinlib check $(DEMO); s=$$?; [ $$s -le 1 ] || exit $$s; \
-	else $(BIN)/pinlib parts list; fi
+demo: $(CORE)
+	$(BIN)/pinlib check $(DEMO); s=$$?; [ $$s -le 1 ] || exit $$s
 
-test: $(STAMP)
+test: $(FULL)
 	$(BIN)/python -m pytest -q
 
-bench: $(STAMP)
+bench: $(FULL)
 	$(BIN)/python -m tests.bench
 
-lint: $(STAMP)
-	$(BIN)/python -m ruff check pinlib tests
+lint: $(FULL)
+	$(BIN)/python -m ruff check pinlib tests setup.py
 
 clean:
 	rm -rf $(VENV) build *.egg-info
