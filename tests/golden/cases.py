@@ -24,6 +24,7 @@ ROOT = HERE.parents[1]
 DEMO = "workbooks/designs/demo-board.toml"
 LONG_SPI = "tests/data/long-spi-link.toml"
 TEST_PARTS = "tests/data/parts"
+PP_PARTS = "tests/data/pushpull"
 DESIGNS = "tests/golden/designs"
 
 #: Modest sample count: the run is a regression net, not a yield estimate.
@@ -73,6 +74,8 @@ CASES: list[Case] = [
     _check("long-spi-link", LONG_SPI),
     _check("whatif-buses", f"{DESIGNS}/whatif-buses.toml", library=TEST_PARTS),
     _check("whatif-rc", f"{DESIGNS}/whatif-rc.toml", library=TEST_PARTS),
+    # GPIO: no design above has a GPIO bus (designs/gpio-lines.toml is written by hand)
+    _check("gpio-lines", f"{DESIGNS}/gpio-lines.toml", library=PP_PARTS),
     # the candidate rankings, in full: I2C (3.3 V segment, 1.8 V segment behind the
     # translator), SMBus, SPI (flash, display) and the controller on all four buses
     _candidates("U4"),
@@ -90,6 +93,8 @@ CASES: list[Case] = [
            MC_SAMPLES, "--seed", "1", library=TEST_PARTS, kind="whatif"),
     _check("whatif-rc", f"{DESIGNS}/whatif-rc.toml", "--corners", "--monte-carlo",
            MC_SAMPLES, "--seed", "1", library=TEST_PARTS, kind="whatif"),
+    _check("gpio-lines", f"{DESIGNS}/gpio-lines.toml", "--corners", "--monte-carlo",
+           MC_SAMPLES, "--seed", "1", library=PP_PARTS, kind="whatif"),
     _check("long-spi-link", LONG_SPI, "--corners", "--monte-carlo", MC_SAMPLES, "--seed", "1",
            kind="whatif"),
     # a substitution: before, after and the change list
