@@ -25,6 +25,7 @@ $(FULL): $(CORE)
 
 demo: $(CORE)
 	$(BIN)/pinlib check $(DEMO); s=$$?; [ $$s -le 1 ] || exit $$s
+	@echo "pinlib is $(BIN)/pinlib: '. $(BIN)/activate' puts it on the PATH of this shell"
 
 test: $(FULL)
 	$(BIN)/python -m pytest -q
