@@ -18,6 +18,7 @@ import shutil
 import subprocess
 import sys
 import zipfile
+from collections.abc import Iterator
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -76,7 +77,7 @@ def _checked(proc: subprocess.CompletedProcess, what: str) -> subprocess.Complet
 
 
 @pytest.fixture(scope="module")
-def installed(tmp_path_factory) -> Installed:
+def installed(tmp_path_factory) -> Iterator[Installed]:
     base = tmp_path_factory.mktemp("install")
     assert not base.resolve().is_relative_to(ROOT)
     env = _clean_env(base)
@@ -98,7 +99,10 @@ def installed(tmp_path_factory) -> Installed:
     work = base / "work"
     work.mkdir()
     env["PATH"] = f"{venv / 'bin'}{os.pathsep}{env.get('PATH', '')}"
-    return Installed(wheel, venv, work, env)
+    yield Installed(wheel, venv, work, env)
+    # about 300 MB: not left for pytest's kept temporary folders
+    shutil.rmtree(venv, ignore_errors=True)
+    shutil.rmtree(src, ignore_errors=True)
 
 
 def _site_packages(inst: Installed) -> Path:
