@@ -1,4 +1,5 @@
-"""Tests of ``pinlib check``: the demo design, the JSON shape of DESIGN.md, exit codes."""
+"""Tests of ``pinlib check``: the demo design, the JSON shape (docs/formats/result.md),
+exit codes."""
 
 from __future__ import annotations
 
@@ -154,7 +155,7 @@ def test_no_pandas_or_altair_on_the_check_path():
     assert proc.stdout.strip() == ""
 
 
-# Figure names that DESIGN.md and the push-pull issue promise for every routed line.
+# Figure names that docs/formats/result.md and the push-pull issue promise for every routed line.
 LINE_FIGURES = {"load_capacitance", "trace_delay", "z0", "edge_rise_time", "edge_fall_time",
                 "series_resistor", "overshoot", "undershoot", "transmission_line", "model"}
 SPI_FIGURES = {"max_clock", "cipo_setup_margin", "copi_setup_margin", "copi_hold_margin"}

@@ -49,7 +49,7 @@ def part(tmp_path):
 def test_output_resistance_from_levels(part):
     p, _ = part
     d = derived_values(p)
-    # from memory: JESD8C.01 LVTTL, VOH 2.4 V at -2 mA, VOL 0.4 V at 2 mA (REFERENCES.md [M]);
+    # from memory: JESD8C.01 LVTTL, VOH 2.4 V at -2 mA, VOL 0.4 V at 2 mA (docs/references.md [M]);
     # derived from Ohm's law at VDD min 3.0 V: (3.0 - 2.4) / 2 mA and 0.4 / 2 mA
     assert d["pins.out.r_out_rise"].value == pytest.approx(300.0, rel=1e-12)
     assert d["pins.out.r_out_fall"].value == pytest.approx(200.0, rel=1e-12)

@@ -260,8 +260,9 @@ def test_bridges_are_described_on_both_sides(lib):
 # ---------------------------------------------------------------------------
 
 # For a value with a typ beside it, which side of typ the stored limit must lie on
-# (DESIGN.md, part-class file: max capacitance, leakage, VOL, delays; min VIH, setup,
-# hold; VIL is a max threshold, guaranteed lower than the typical switching point).
+# (docs/formats/part.md, the rule for every number: max capacitance, leakage, VOL,
+# delays; min VIH, setup, hold; VIL is a max threshold, guaranteed lower than the typical
+# switching point).
 _ABOVE_TYP = {"c_in", "leakage", "v_ol", "v_ih", "t_valid", "t_pd", "t_setup", "t_hold",
               "t_cs_setup", "t_cs_hold", "rise", "fall", "low_offset", "r_on", "v_gs_th",
               "capacitance", "t_vd_dat", "t_vd_ack"}
@@ -306,7 +307,7 @@ def test_input_thresholds_and_output_levels_are_ordered(lib):
 
 
 # derived from the RC step response: t(10-90) = ln 9 · RC, t(20-80) = ln 4 · RC
-# (REFERENCES.md, board traces [D]).  A driver's own edge only adds to it, so a stated
+# (docs/references.md, board traces [D]).  A driver's own edge only adds to it, so a stated
 # edge can never be faster than its r_out into the stated load.
 _RC_FACTOR = {"10-90": math.log(9.0), "20-80": math.log(4.0)}
 

@@ -146,8 +146,9 @@ def test_fit_is_unchanged_by_point_order():
 # --------------------------------------------------------------------------- datasheet-style table
 
 # A datasheet-style table of edge time at two loads, generated from the RC-edge identities
-# (derived from REFERENCES: 10-90 % = ln 9 RC = 2.197 RC, 20-80 % = ln 4 RC = 1.386 RC) for a
-# driver of 20 Ω with an ideal step (t_ramp -> 0). Printed to four significant digits.
+# (derived from docs/references.md: 10-90 % = ln 9 RC = 2.197 RC, 20-80 % = ln 4 RC =
+# 1.386 RC) for a driver of 20 Ω with an ideal step (t_ramp -> 0). Printed to four
+# significant digits.
 RC_EDGE_TABLE = [
     # load [F], levels, edge time [s]
     (15e-12, "10-90", 0.6591e-9),   # 2.197 * 20 Ω * 15 pF

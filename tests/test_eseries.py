@@ -17,21 +17,21 @@ from pinlib.errors import InputError
 # Published data
 # ---------------------------------------------------------------------------
 
-# published: IEC 60063, E24 series (REFERENCES.md: "E24: 1.0 ... 9.1 [C]", read in a
-# stored copy of the primary document; REFERENCES.md records no edition/table number)
+# published: IEC 60063, E24 series (docs/references.md: "E24: 1.0 ... 9.1 [C]", read in a
+# stored copy of the primary document; docs/references.md records no edition/table number)
 IEC60063_E24 = [
     1.0, 1.1, 1.2, 1.3, 1.5, 1.6, 1.8, 2.0, 2.2, 2.4, 2.7, 3.0,
     3.3, 3.6, 3.9, 4.3, 4.7, 5.1, 5.6, 6.2, 6.8, 7.5, 8.2, 9.1,
 ]  # fmt: skip
 
 # derived from IEC 60063 E24 above: E12, E6, E3 are every 2nd / 4th / 8th value
-# (REFERENCES.md, IEC 60063 section)
+# (docs/references.md, IEC 60063 section)
 IEC60063_E12 = IEC60063_E24[::2]
 IEC60063_E6 = IEC60063_E24[::4]
 IEC60063_E3 = IEC60063_E24[::8]
 
 # derived from round(10**(i/24), 1) vs the E24 table: the eight E24 values that the
-# formula misses (REFERENCES.md [D])
+# formula misses (docs/references.md [D])
 E24_OFF_FORMULA = [2.7, 3.0, 3.3, 3.6, 3.9, 4.3, 4.7, 8.2]
 
 REF_KEYS = {
@@ -46,7 +46,7 @@ REF_KEYS = {
 
 
 def test_e24_is_the_iec_table():
-    # published: IEC 60063 E24 (REFERENCES.md [C]); values print to 0.1, exact floats
+    # published: IEC 60063 E24 (docs/references.md [C]); values print to 0.1, exact floats
     assert es.series("E24").tolist() == IEC60063_E24
 
 
@@ -71,13 +71,13 @@ def test_eight_e24_values_differ_from_the_formula():
     e24 = es.series("E24")
     formula = np.round(10.0 ** (np.arange(24) / 24), 1)
     differ = e24[~np.isclose(e24, formula, rtol=0, atol=1e-9)]
-    # derived from round(10**(i/24), 1) (REFERENCES.md [D])
+    # derived from round(10**(i/24), 1) (docs/references.md [D])
     assert differ.tolist() == E24_OFF_FORMULA
 
 
 @pytest.mark.parametrize("name, n", [("E48", 48), ("E96", 96)])
 def test_e48_e96_follow_the_formula_exactly(name, n):
-    # derived from round(100 * 10**(i/N)) (REFERENCES.md [D])
+    # derived from round(100 * 10**(i/N)) (docs/references.md [D])
     formula = np.round(100 * 10.0 ** (np.arange(n) / n)) / 100
     np.testing.assert_array_equal(es.series(name), formula)
 
@@ -87,9 +87,9 @@ def test_e192_has_the_single_920_exception():
     formula = np.round(100 * 10.0 ** (np.arange(192) / 192)) / 100
     differ = np.nonzero(e192 != formula)[0]
     assert differ.tolist() == [185]
-    # derived from round(100 * 10**(185/192)) = 919 (REFERENCES.md [D, C2])
+    # derived from round(100 * 10**(185/192)) = 919 (docs/references.md [D, C2])
     assert formula[185] == 9.19
-    # published: IEC 60063 E192 prints 920 (REFERENCES.md [D, C2])
+    # published: IEC 60063 E192 prints 920 (docs/references.md [D, C2])
     assert e192[185] == 9.20
 
 
@@ -138,7 +138,7 @@ def test_values_in_range_matches_erange(name, lo, hi):
 
 
 def test_values_in_range_e24_one_decade():
-    # published: IEC 60063 E24 (REFERENCES.md [C]), one decade plus its end point
+    # published: IEC 60063 E24 (docs/references.md [C]), one decade plus its end point
     expected = [v * 1e3 for v in IEC60063_E24] + [1e4]
     np.testing.assert_allclose(es.values_in_range("E24", 1e3, 1e4), expected, rtol=1e-15)
 
@@ -180,7 +180,7 @@ def test_known_lookups_from_the_eseries_package():
     # published: eseries package README/recipe, find_nearest(E24, 2345) -> 2400
     # (RECIPES.md, eseries section)
     assert es.nearest("E24", 2345.0, how="linear") == 2400.0
-    # published: REFERENCES.md, eseries "nearest" is linear: 1049 -> 1000
+    # published: docs/references.md, eseries "nearest" is linear: 1049 -> 1000
     assert es.nearest("E24", 1049.0, how="linear") == 1000.0
     assert ref.find_nearest(ref.E24, 1049) == 1000
 
@@ -196,7 +196,7 @@ def test_log_and_linear_nearest_differ_below_the_geometric_mean():
 
 
 def test_small_bus_rounding_to_e6():
-    # derived from REFERENCES.md small-bus check [D]: Rp(max) 23.76 kΩ and 79.21 kΩ
+    # derived from docs/references.md small-bus check [D]: Rp(max) 23.76 kΩ and 79.21 kΩ
     # rounded down to E6 are 22 kΩ and 68 kΩ
     np.testing.assert_array_equal(es.below("E6", [23.76e3, 79.21e3]), [22e3, 68e3])
 

@@ -31,7 +31,7 @@ INCH = 0.0254  # [m]
 # ============================================================================ source data
 # Rows of check values, each with where it comes from. Invented edge cases are further down.
 
-# derived from Hammerstad & Jensen 1980 closed forms (REFERENCES.md [D])
+# derived from Hammerstad & Jensen 1980 closed forms (docs/references.md [D])
 # (er, w/h, er_eff, Z0 [Ω]) for a strip of zero thickness
 hammerstad_jensen_zero_thickness = [
     (4.3, 1.8, 3.246, 52.40),
@@ -53,21 +53,21 @@ def test_hammerstad_jensen_zero_thickness(er, u, er_eff, z0):
 
 def test_scikit_rf_reference_value():
     # published: scikit-rf 2.2 MLine(w=0.3 mm, h=0.2 mm, t=35 µm, ep_r=4.3) at 100 MHz
-    # gives Z0 55.08 Ω, er_eff 3.066 (REFERENCES.md, Board traces)
+    # gives Z0 55.08 Ω, er_eff 3.066 (docs/references.md, Board traces)
     m = microstrip(0.3e-3, 0.2e-3, 4.3, 35e-6)
     assert m.z0 == pytest.approx(55.08, abs=0.005)
     assert m.er_eff == pytest.approx(3.066, abs=0.0005)
 
 
 def test_ipc2141_microstrip_check_value():
-    # derived from IPC-2141 microstrip formula (REFERENCES.md [D]):
+    # derived from IPC-2141 microstrip formula (docs/references.md [D]):
     # er 4.3, h 10 mil, w 18 mil, t 1.4 mil -> 48.46 Ω
     m = microstrip(18 * MIL, 10 * MIL, 4.3, 1.4 * MIL, method="ipc-2141")
     assert m.z0 == pytest.approx(48.46, abs=0.005)
 
 
 def test_ipc2141_stripline_check_value():
-    # derived from IPC-2141 stripline formula (REFERENCES.md [D]):
+    # derived from IPC-2141 stripline formula (docs/references.md [D]):
     # er 4.3, b 20 mil, w 7 mil, t 0.7 mil -> 52.00 Ω.
     # w/(b-t) = 0.363 is just outside the formula's quoted range, hence the warning.
     with pytest.warns(ValidityWarning, match=r"w/\(b-t\) < 0.35"):
@@ -205,7 +205,7 @@ def test_field_solver_reproduces_cohn():
 
 def test_fr4_stripline_50_ohm_per_length_bounds():
     # common practice, no source: a 50 Ω FR-4 stripline has about 3.5 pF/in and
-    # 170 ps/in (REFERENCES.md gives 3.4-3.5 pF/in [M] and about 180 ps/in [C2])
+    # 170 ps/in (docs/references.md gives 3.4-3.5 pF/in [M] and about 180 ps/in [C2])
     b, t, er = 20 * MIL, 0.7 * MIL, 4.3
     w = np.linspace(3 * MIL, 12 * MIL, 901)
     z0 = stripline(w, b, er, t).z0

@@ -64,13 +64,14 @@ def fig(res, name):
 
 
 def test_rp_min_3v3_3ma(tmp_path):
-    # derived from UM10204 rev. 6 §7.1 eq. 2, (3.3 - 0.4)/3 mA = 966.7 Ω (REFERENCES.md [D])
+    # derived from UM10204 rev. 6 §7.1 eq. 2, (3.3 - 0.4)/3 mA = 966.7 Ω (docs/references.md [D])
     res = bus_result(tmp_path, one_bus())
     assert fig(res, "rp_min") == pytest.approx(966.7, abs=0.05)
 
 
 def test_rp_max_400pf_fast_mode(tmp_path):
-    # derived from UM10204 rev. 6 eq. 1, 300 ns / (0.8473 · 400 pF) = 885.2 Ω (REFERENCES.md [D]);
+    # derived from UM10204 rev. 6 eq. 1, 300 ns / (0.8473 · 400 pF) = 885.2 Ω
+    # (docs/references.md [D]);
     # the two pins carry 10 pF each, the rest is extra capacitance
     res = bus_result(tmp_path, one_bus(extra="380 pF"))
     assert fig(res, "bus_capacitance") == pytest.approx(400e-12, rel=1e-12)
@@ -78,7 +79,7 @@ def test_rp_max_400pf_fast_mode(tmp_path):
 
 
 @pytest.mark.parametrize("mode,extra,rp_max,tol", [
-    # derived from UM10204 rev. 6 eq. 1 with the table 10 tr limits (REFERENCES.md [D])
+    # derived from UM10204 rev. 6 eq. 1 with the table 10 tr limits (docs/references.md [D])
     ("fast", "180 pF", 1770.0, 0.5),        # Fast-mode, 200 pF
     ("fast", "80 pF", 3541.0, 0.5),         # Fast-mode, 100 pF
     ("standard", "380 pF", 2951.0, 0.5),    # Standard-mode, 400 pF
@@ -90,7 +91,7 @@ def test_rp_max_other_modes(tmp_path, mode, extra, rp_max, tol):
 
 
 @pytest.mark.parametrize("mode,supply,part,rp_min,tol", [
-    # derived from UM10204 rev. 6 eq. 2 (REFERENCES.md [D]):
+    # derived from UM10204 rev. 6 eq. 2 (docs/references.md [D]):
     ("fast", "3.3 V", "t-target-6ma", 450.0, 0.5),    # Fm alternative sink, 6 mA at 0.6 V
     # the specification's own sink points, taken for parts that state none (table 9):
     ("fast-plus", "3.3 V", "t-target-bare", 145.0, 0.5),  # Fm+ 20 mA at 0.4 V
@@ -158,7 +159,7 @@ def test_rise_time_is_worst_case(tmp_path):
 
 
 def test_400pf_fast_mode_fails_with_quantified_advice(tmp_path):
-    # REFERENCES.md [D]: a Fast-mode bus at 3.3 V with 400 pF and 3 mA sinks has no passive
+    # docs/references.md [D]: a Fast-mode bus at 3.3 V with 400 pF and 3 mA sinks has no passive
     # pull-up (885 Ω < 967 Ω)
     res = bus_result(tmp_path, one_bus(extra="380 pF"))
     assert res.status == "fail"
@@ -167,7 +168,7 @@ def test_400pf_fast_mode_fails_with_quantified_advice(tmp_path):
     fix = chk.fix
     # derived from eq. 1 and 2: Cb(max) = 300 ns / (0.8473 · 966.7 Ω) = 366 pF
     assert "bring Cb below 366 pF (now 400 pF" in fix
-    # derived from eq. 1 with the Standard-mode tr 1 µs: 2.95 kΩ (REFERENCES.md: 2951 Ω)
+    # derived from eq. 1 with the Standard-mode tr 1 µs: 2.95 kΩ (docs/references.md: 2951 Ω)
     assert "I2C Standard-mode" in fix and "allows Rp up to 2.95 kΩ" in fix
     assert "bus buffer splitting the bus into 2 segments of under 366 pF" in fix
     # derived from I = C·ΔV/t: 400 pF · 0.4 · 3.3 V / 300 ns = 1.76 mA (UM10204 §5.1: 3 mA max)
@@ -226,7 +227,7 @@ def test_smbus_rise_factor_at_1v8(tmp_path):
                '{ ref = "U9", part = "t-target-bare" }']
     res = bus_result(tmp_path, one_bus(protocol="smbus", mode="100k", supply="1.8 V",
                                        devices=devices))
-    # derived from ln((1.8 - 0.65)/(1.8 - 1.5)) = 1.344 (REFERENCES.md [D])
+    # derived from ln((1.8 - 0.65)/(1.8 - 1.5)) = 1.344 (docs/references.md [D])
     assert fig(res, "rise_factor") == pytest.approx(1.344, abs=5e-4)
 
 

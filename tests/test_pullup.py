@@ -50,7 +50,7 @@ def test_high_level_and_power():
 
 def test_scl_frequency_eq3_gives_the_mode_maxima():
     # derived from UM10204 rev. 6 eq. 3 with table 10 minima and maximum edges:
-    # 100 kHz, 400 kHz, 1 MHz (REFERENCES.md [D])
+    # 100 kHz, 400 kHz, 1 MHz (docs/references.md [D])
     assert pu.scl_frequency(4.7e-6, 4.0e-6, 1000e-9, 300e-9) == pytest.approx(100e3, rel=1e-9)
     assert pu.scl_frequency(1.3e-6, 0.6e-6, 300e-9, 300e-9) == pytest.approx(400e3, rel=1e-9)
     assert pu.scl_frequency(0.5e-6, 0.26e-6, 120e-9, 120e-9) == pytest.approx(1e6, rel=1e-9)

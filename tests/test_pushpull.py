@@ -231,12 +231,12 @@ sections = [
 """
     design = _design(tmp_path, body)
     st = stretches_of(design.bus("s").lines["sclk"].sections)
-    # derived from Z0 = tpd / C: 1.1 pF/cm and 58 ps/cm -> 52.73 Ω (REFERENCES.md, per length)
+    # derived from Z0 = tpd / C: 1.1 pF/cm and 58 ps/cm -> 52.73 Ω (docs/references.md, per length)
     assert st[0].z0 == pytest.approx(5.8e-9 / 1.1e-10, rel=1e-12)
     assert st[0].td == pytest.approx(5.8e-9 * 0.04, rel=1e-12)
     assert st[0].c == pytest.approx(1.1e-10 * 0.04, rel=1e-12)
     # published: scikit-rf 2.2 MLine(w=0.3 mm, h=0.2 mm, t=35 µm, er 4.3): Z0 55.08 Ω
-    # (REFERENCES.md, Board traces)
+    # (docs/references.md, Board traces)
     assert st[1].z0 == pytest.approx(55.08, abs=0.01)
     # the cable class's own impedance and delay (pp-cable: 100 Ω, 5 ns/m, 0.5 pF/cm)
     assert st[2].z0 == pytest.approx(100.0, rel=1e-12)
@@ -248,7 +248,7 @@ sections = [
 
 
 def test_auto_series_resistor_is_e24_nearest_of_z0_minus_r_out():
-    # derived from Rs = Z0 - Rout (REFERENCES.md, series termination), E24 of IEC 60063:
+    # derived from Rs = Z0 - Rout (docs/references.md, series termination), E24 of IEC 60063:
     # 50 - 20 = 30 -> 30 Ω; 50 - 17 = 33 -> 33 Ω; 64.1 - 30 = 34.1 -> 33 Ω
     assert auto_series_resistor(50.0, 20.0) == 30.0
     assert auto_series_resistor(50.0, 17.0) == 33.0
@@ -470,7 +470,7 @@ lines.irq = { length = "6 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }
     (ln,) = irq.lines
     c_total = 6e-12 + 5e-12 + 5e-12  # trace, controller input, module input
     assert ln.figures["load_capacitance"].value == pytest.approx(c_total, rel=1e-12)
-    # derived from the RC step (REFERENCES.md, RC edges): 10-90 % = ln 9 Rp C through the
+    # derived from the RC step (docs/references.md, RC edges): 10-90 % = ln 9 Rp C through the
     # module's 4.7 kΩ pull-up (a pull-up >> Z0 charges the line as one capacitance)
     assert ln.figures["edge_rise_time"].value == pytest.approx(
         math.log(9.0) * 4.7e3 * c_total, rel=1e-3)

@@ -374,7 +374,7 @@ def test_timing_budget_agrees_with_the_result(demo):
             continue
         br = result.bus(bus.id)
         tb = plotdata.timing_budget_data(bus, design)
-        # derived from the SPI budget structure (REFERENCES.md, SPI): T/2 at the clock
+        # derived from the SPI budget structure (docs/references.md, SPI): T/2 at the clock
         assert tb.period == pytest.approx(1.0 / bus.clock, rel=1e-15)
         budget_checks = [c for c in br.checks if c.id != "f-max"]
         assert len(tb.margins) == len(budget_checks)

@@ -60,7 +60,7 @@ devices = [
 
 
 def test_mode_table():
-    # published: REFERENCES.md, SPI [C2]: mode 0 idle low, sample rising, change falling;
+    # published: docs/references.md, SPI [C2]: mode 0 idle low, sample rising, change falling;
     # 1 sample falling, change rising; 2 idle high, sample falling (leading), change
     # rising; 3 sample rising (trailing), change falling
     published = {0: (0, 0, "low", "rise", "fall"), 1: (0, 1, "low", "fall", "rise"),
@@ -100,7 +100,7 @@ def test_budget_uses_each_modes_edges(tmp_path, mode):
 
 
 def test_published_isolated_loop_example():
-    # published: an isolated-SPI application note (REFERENCES.md, SPI [C2]):
+    # published: an isolated-SPI application note (docs/references.md, SPI [C2]):
     # T_CLK,min = 2 (tptot + tsu), 160 ns + 5 ns -> about 3 MHz
     assert spi.max_clock([0.5], [160e-9 + 5e-9]) == pytest.approx(3.0e6, abs=0.05e6)
     # the same budget through the CIPO margin: T/2 - (160 ns total loop) >= 5 ns

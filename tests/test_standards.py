@@ -1,4 +1,4 @@
-"""Tests of the standards tables against the published numbers (REFERENCES.md)."""
+"""Tests of the standards tables against the published numbers (docs/references.md)."""
 
 from __future__ import annotations
 
@@ -15,10 +15,10 @@ from pinlib.standards import i2c, jedec, smbus
 US, NS, PF, MA, UA, KHZ = 1e-6, 1e-9, 1e-12, 1e-3, 1e-6, 1e3
 
 # ---------------------------------------------------------------------------
-# Published data, typed from REFERENCES.md in the units the tables print
+# Published data, typed from docs/references.md in the units the tables print
 # ---------------------------------------------------------------------------
 
-# published: UM10204 rev. 6, table 10 (REFERENCES.md [C]); µs, ns, pF, kHz as printed;
+# published: UM10204 rev. 6, table 10 (docs/references.md [C]); µs, ns, pF, kHz as printed;
 # None where the table prints "—"
 UM10204_REV6_TABLE10 = {
     #                standard  fast   fast-plus
@@ -42,7 +42,7 @@ UM10204_REV6_TABLE10 = {
     "v_nh_rel": (0.2, 0.2, 0.2),
 }
 
-# published: UM10204 rev. 6, table 9 (REFERENCES.md [C])
+# published: UM10204 rev. 6, table 9 (docs/references.md [C])
 UM10204_REV6_TABLE9 = {
     #                standard  fast   fast-plus
     "v_il_rel": (0.3, 0.3, 0.3),
@@ -153,7 +153,7 @@ def test_i2c_thresholds_at_vdd():
 def test_i2c_eq3_gives_the_mode_frequency(mode, f_expected):
     m = i2c.i2c_mode(mode)
     f = 1.0 / (m.t_low + m.t_high + m.tr_max + m.tf_max)
-    # derived from UM10204 rev. 6 eq. 3, REFERENCES.md [D]: exactly 100 kHz, 400 kHz, 1 MHz
+    # derived from UM10204 rev. 6 eq. 3, docs/references.md [D]: exactly 100 kHz, 400 kHz, 1 MHz
     assert f == pytest.approx(f_expected, rel=1e-12)
     assert f == pytest.approx(m.f_scl_max, rel=1e-12)
 
@@ -168,11 +168,11 @@ def test_i2c_rise_factor_from_the_thresholds():
 @pytest.mark.parametrize(
     "mode, cb, rp_expected, tol",
     [
-        ("fast", 400 * PF, 885.2, 0.05),  # derived from Eq. 1, REFERENCES.md [D]
-        ("fast", 200 * PF, 1770, 0.5),  # derived from Eq. 1, REFERENCES.md [D]
-        ("fast", 100 * PF, 3541, 0.5),  # derived from Eq. 1, REFERENCES.md [D]
-        ("standard", 400 * PF, 2951, 0.5),  # derived from Eq. 1, REFERENCES.md [D]
-        ("fast-plus", 550 * PF, 257.5, 0.05),  # derived from Eq. 1, REFERENCES.md [D]
+        ("fast", 400 * PF, 885.2, 0.05),  # derived from Eq. 1, docs/references.md [D]
+        ("fast", 200 * PF, 1770, 0.5),  # derived from Eq. 1, docs/references.md [D]
+        ("fast", 100 * PF, 3541, 0.5),  # derived from Eq. 1, docs/references.md [D]
+        ("standard", 400 * PF, 2951, 0.5),  # derived from Eq. 1, docs/references.md [D]
+        ("fast-plus", 550 * PF, 257.5, 0.05),  # derived from Eq. 1, docs/references.md [D]
     ],
 )
 def test_i2c_rp_max_from_table_edges(mode, cb, rp_expected, tol):
@@ -182,7 +182,7 @@ def test_i2c_rp_max_from_table_edges(mode, cb, rp_expected, tol):
 
 
 def test_i2c_cb_max_at_table_limits():
-    # derived from Eq. 1 with the table's own Cb max, REFERENCES.md [D]: 885.2 Ω, 257.5 Ω
+    # derived from Eq. 1 with the table's own Cb max, docs/references.md [D]: 885.2 Ω, 257.5 Ω
     fm, fp = i2c.i2c_mode("fast"), i2c.i2c_mode("fast-plus")
     assert fm.tr_max / (0.8473 * fm.cb_max) == pytest.approx(885.2, abs=0.05)
     assert fp.tr_max / (0.8473 * fp.cb_max) == pytest.approx(257.5, abs=0.05)
@@ -201,11 +201,11 @@ def _rp_min(mode, vdd):
 @pytest.mark.parametrize(
     "mode, vdd, rp_expected, tol",
     [
-        ("fast", 3.3, 966.7, 0.05),  # derived from Eq. 2, REFERENCES.md [D]
-        ("fast", 5.0, 1533, 0.5),  # derived from Eq. 2, REFERENCES.md [D]
-        ("fast", 5.5, 1700, 0.5),  # derived from Eq. 2, REFERENCES.md [D]
-        ("fast-plus", 3.3, 145, 0.5),  # derived from Eq. 2, REFERENCES.md [D]
-        ("fast", 1.8, 720, 0.5),  # derived from Eq. 2 with VOL2, REFERENCES.md [D]
+        ("fast", 3.3, 966.7, 0.05),  # derived from Eq. 2, docs/references.md [D]
+        ("fast", 5.0, 1533, 0.5),  # derived from Eq. 2, docs/references.md [D]
+        ("fast", 5.5, 1700, 0.5),  # derived from Eq. 2, docs/references.md [D]
+        ("fast-plus", 3.3, 145, 0.5),  # derived from Eq. 2, docs/references.md [D]
+        ("fast", 1.8, 720, 0.5),  # derived from Eq. 2 with VOL2, docs/references.md [D]
     ],
 )
 def test_i2c_rp_min_from_sink_spec(mode, vdd, rp_expected, tol):
@@ -219,7 +219,7 @@ def test_i2c_um10204_example_7_2_4():
 
 def test_i2c_slva689_example():
     # published: TI SLVA689 (Feb 2015), Fast-mode, 3.3 V, 200 pF, 0.4 V at 3 mA, tr 300 ns:
-    # 966.667 Ω <= Rp <= 1.77 kΩ (REFERENCES.md [C2])
+    # 966.667 Ω <= Rp <= 1.77 kΩ (docs/references.md [C2])
     m = i2c.i2c_mode("fast")
     assert _rp_min(m, 3.3) == pytest.approx(966.667, abs=0.0005)
     assert m.tr_max / (0.8473 * 200 * PF) == pytest.approx(1.77e3, abs=5)
@@ -227,7 +227,7 @@ def test_i2c_slva689_example():
 
 def test_i2c_fast_mode_alternative_sink_point():
     m = i2c.i2c_mode("fast")
-    # derived from Eq. 2 with 6 mA at 0.6 V, 3.3 V: 450 Ω (REFERENCES.md [D])
+    # derived from Eq. 2 with 6 mA at 0.6 V, 3.3 V: 450 Ω (docs/references.md [D])
     assert (3.3 - m.v_ol_06) / m.i_ol_06 == pytest.approx(450, abs=0.5)
 
 
@@ -261,7 +261,7 @@ def test_i2c_sink_spec_array_equals_scalar_loop():
 # SMBus
 # ---------------------------------------------------------------------------
 
-# published: SMBus specification version 3.1, table 2 (REFERENCES.md [C])
+# published: SMBus specification version 3.1, table 2 (docs/references.md [C])
 SMBUS31_TABLE2 = {
     #                  100k    400k   1m
     "f_smb_min_khz": (10, 10, 10),
@@ -285,7 +285,7 @@ SMBUS31_TABLE2 = {
     "t_por_ms": (500, 500, 500),
 }
 
-# published: SMBus specification version 3.1, table 4, high power (REFERENCES.md [C])
+# published: SMBus specification version 3.1, table 4, high power (docs/references.md [C])
 SMBUS31_TABLE4 = {
     "v_il_max_v": (0.8, 0.8, 0.8),
     "v_ih_min_v": (1.35, 1.35, 1.35),
@@ -341,7 +341,7 @@ def test_smbus_100k_blank_fields_are_explained():
 
 def test_smbus_low_power_values():
     lp = smbus.SMBUS_LOW_POWER
-    # published: SMBus specification version 3.1, table 3 (REFERENCES.md [C])
+    # published: SMBus specification version 3.1, table 3 (docs/references.md [C])
     assert (lp.vdd_min, lp.vdd_max) == (1.62, 5.5)
     assert (lp.v_il_max, lp.v_ih_min) == (0.8, 1.35)
     assert lp.v_ol == 0.4 and lp.i_ol == pytest.approx(350 * UA, rel=1e-12)
@@ -355,7 +355,7 @@ def test_smbus_low_power_values():
 @pytest.mark.parametrize("cls", [*CLASSES, "low-power", smbus.SMBUS_LOW_POWER])
 def test_smbus_rise_points(cls):
     v_lo, v_hi = smbus.rise_points(cls)
-    # published: SMBus 3.1 (REFERENCES.md [C]): rise/fall from VIL,max - 0.15 V = 0.65 V
+    # published: SMBus 3.1 (docs/references.md [C]): rise/fall from VIL,max - 0.15 V = 0.65 V
     # to VIH,min + 0.15 V = 1.50 V
     assert v_lo == pytest.approx(0.65, abs=1e-12)
     assert v_hi == pytest.approx(1.50, abs=1e-12)
@@ -364,8 +364,8 @@ def test_smbus_rise_points(cls):
 @pytest.mark.parametrize(
     "vdd, k_expected",
     [
-        (3.3, 0.387),  # derived from ln((VDD-0.65)/(VDD-1.5)), REFERENCES.md [D]
-        (1.8, 1.344),  # derived from ln((VDD-0.65)/(VDD-1.5)), REFERENCES.md [D]
+        (3.3, 0.387),  # derived from ln((VDD-0.65)/(VDD-1.5)), docs/references.md [D]
+        (1.8, 1.344),  # derived from ln((VDD-0.65)/(VDD-1.5)), docs/references.md [D]
     ],
 )
 def test_smbus_rise_rc_factor(vdd, k_expected):
@@ -386,7 +386,7 @@ def test_smbus_rise_rc_factor_array_and_limit():
 
 
 def test_smbus_timing_follows_i2c_in_each_class():
-    # custom consistency check between two transcriptions: as recorded in REFERENCES.md,
+    # custom consistency check between two transcriptions: as recorded in docs/references.md,
     # SMBus 3.1 table 2 and UM10204 rev. 6 table 10 print the same numbers for these
     # limits, class by class, so a typo in either table shows up here
     for cls_name, mode_name in zip(CLASSES, MODES, strict=True):
@@ -403,7 +403,7 @@ def test_smbus_timing_follows_i2c_in_each_class():
 # JEDEC
 # ---------------------------------------------------------------------------
 
-# from memory: JEDEC JESD8 family, as recorded in REFERENCES.md (documents not stored;
+# from memory: JEDEC JESD8 family, as recorded in docs/references.md (documents not stored;
 # [M] unless marked [C2]); (name, standard, vdd_nom, vdd range, VIH, VIL) with levels as
 # (offset V, per-VDD)
 JEDEC_INPUTS = [
@@ -433,7 +433,7 @@ def test_jedec_inputs(name, standard, vdd_nom, vdd_range, vih, vil):
     assert (s.vdd_nom, s.vdd_min, s.vdd_max) == (vdd_nom, *vdd_range)
     assert (s.v_ih_min.offset, s.v_ih_min.per_vdd) == vih
     assert (s.v_il_max.offset, s.v_il_max.per_vdd) == vil
-    # REFERENCES.md marks every JEDEC input threshold [M]
+    # docs/references.md marks every JEDEC input threshold [M]
     assert s.from_memory is True
     assert s.source == f"from memory: {standard}"
 
