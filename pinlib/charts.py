@@ -57,11 +57,15 @@ __all__ = [
 ]
 
 # --------------------------------------------------------------------------- palette
-# The eight colours of the Okabe–Ito palette (M. Okabe and K. Ito, "Color Universal
-# Design (CUD): how to make figures and presentations that are friendly to colorblind
-# people", 2002/2008; the same RGB values reprinted in B. Wong, "Points of view: Color
-# blindness", Nature Methods 8, 441 (2011)).  They stay distinct under protanopia,
-# deuteranopia and tritanopia.  Yellow is kept out of the line colours (weak on white).
+# pinlib's chart palette.  Status and role colours are the Okabe–Ito colours (M. Okabe
+# and K. Ito, "Color Universal Design (CUD): how to make figures and presentations that
+# are friendly to colorblind people", 2002/2008; RGB values as reprinted in B. Wong,
+# "Points of view: Color blindness", Nature Methods 8, 441 (2011)).  Series colours add
+# four tones of P. Tol's colour-blind-safe "muted" scheme (indigo, wine, olive, sand;
+# from memory: P. Tol, "Colour Schemes", SRON technical note) and a dark olive.  The
+# selection is pinlib's own: every pair of colours that can meet in one chart stays
+# apart under simulated protanopia, deuteranopia and tritanopia (tests/test_charts.py
+# measures it).
 INK = "#000000"  # black
 ORANGE = "#E69F00"
 SKY_BLUE = "#56B4E9"
@@ -70,24 +74,65 @@ YELLOW = "#F0E442"
 BLUE = "#0072B2"
 VERMILLION = "#D55E00"
 REDDISH_PURPLE = "#CC79A7"
+INDIGO = "#332288"
+WINE = "#882255"
+OLIVE = "#999933"
+SAND = "#DDCC77"
+DARK_OLIVE = "#666633"
 
 # Roles, each a colour of the palette above.  A chart never gives two roles one colour.
+# Status colours (pass, warn, fail) are never series colours.
 PASS = BLUISH_GREEN
 WARN = ORANGE
 FAIL = VERMILLION
 REGION = SKY_BLUE  # an allowed region (shaded, translucent)
-UNDEFINED = ORANGE  # the band between VIL and VIH (shaded, translucent)
+UNDEFINED = ORANGE  # the band between VIL and VIH (shaded, translucent); name kept
+THRESHOLD_BAND = UNDEFINED
 LIMIT = REDDISH_PURPLE  # a limit or threshold line
 OPERATING = INK  # the chosen operating point
-# Curves (drivers, edges, traces, budget components), in this order; a chart skips the
-# colours its fixed roles already use.
-SERIES = (BLUE, VERMILLION, BLUISH_GREEN, REDDISH_PURPLE, ORANGE, SKY_BLUE, INK)
+BOUND_LOW = BLUE  # a lower bound drawn as a curve (Rp min)
+BOUND_HIGH = WINE  # an upper bound drawn as a curve (Rp max)
 STATUS_COLOURS = {"pass": PASS, "warn": WARN, "fail": FAIL}
+# Series colours: never a status colour.  A series the table below does not name gets
+# the first of these its chart has free, in this order after a stable hash of its name.
+SERIES = (BLUE, WINE, SKY_BLUE, INDIGO, OLIVE, DARK_OLIVE, SAND)
 
-_WIDTH = 440
-_HEIGHT = 280
+#: The colour of every series pinlib's own charts draw, by name (a resistor value in the
+#: name, "Rs 27 Ω", is left out of the key: see :func:`series_key`).  A series keeps its
+#: colour whichever other series a redraw shows.
+SERIES_COLOURS = {
+    # edge time against load (pinlib.plotdata.edge_vs_load_data): rise blue tones,
+    # fall wine/sky; the dark tone without the series resistor
+    "rise 10-90": INDIGO,
+    "fall 10-90": WINE,
+    "rise 10-90, Rs": BLUE,
+    "fall 10-90, Rs": SKY_BLUE,
+    "rise 20-80": OLIVE,
+    "fall 20-80": DARK_OLIVE,
+    # far-end waveforms (pinlib.plotdata.waveform_data), the same pairs
+    "rise, no series R": INDIGO,
+    "fall, no series R": WINE,
+    "rise, Rs": BLUE,
+    "fall, Rs": SKY_BLUE,
+    # timing budget components (pinlib.plotdata.BUDGET_COMPONENTS)
+    "output valid (t_valid)": BLUE,
+    "data or CS flight": WINE,
+    "SCLK flight": SKY_BLUE,
+    "required setup or hold": SAND,
+    "bridging parts": INDIGO,
+}
+
+# The charts' font.  vl-convert measures text with the first family it finds (DejaVu
+# Sans where installed, the widest common sans-serif); a browser that lacks it draws a
+# narrower face, so text never runs past the place measured for it.
+FONT = "DejaVu Sans, Verdana, sans-serif"
+
+_WIDTH = 480  # the whole chart, axes and legend included
+_HEIGHT = 260  # the plot
 _REGION_OPACITY = 0.30
 _BAND_OPACITY = 0.25
+_PAD_PX = 12  # space between the outermost drawn value and the frame
+_FLUSH_PX = 20  # an axis label this close to an end of its axis is aligned flush with it
 
 # Engineering prefixes for axis units (exponent -> prefix); micro as µ, like format_si.
 _PREFIXES = {12: "T", 9: "G", 6: "M", 3: "k", 0: "", -3: "m", -6: "µ", -9: "n", -12: "p",
@@ -255,16 +300,95 @@ def _title(label: str, shown_unit: str) -> str:
     return f"{label} ({shown_unit})" if shown_unit else label
 
 
-def _colours(labels: Sequence[str], taken: Sequence[str]) -> list[str]:
-    """Colours for curve labels, from SERIES without the colours of fixed roles."""
-    free = [c for c in SERIES if c not in taken] or list(SERIES)
-    return [free[i % len(free)] for i in range(len(labels))]
+# Advance widths of DejaVu Sans (regular, bold) in em, read from the font's hmtx table
+# (DejaVu fonts 2.37): what vl-convert measures the charts' text with.  Characters not
+# listed count as a full em, so an estimate errs wide.
+_EM = {
+    False: dict(zip(
+        " !\"#$%&'()*+,-./0123456789:;<=>?@ABCDEFGHIJKLMNOPQRSTUVWXYZ[\\]^_`"
+        "abcdefghijklmnopqrstuvwxyz{|}~Ωµ–·≤≥×±°",
+        (0.318, 0.401, 0.46, 0.838, 0.636, 0.95, 0.78, 0.275, 0.39, 0.39, 0.5, 0.838, 0.318,
+         0.361, 0.318, 0.337, *[0.636] * 10, 0.337, 0.337, 0.838, 0.838, 0.838, 0.531, 1.0,
+         0.684, 0.686, 0.698, 0.77, 0.632, 0.575, 0.775, 0.752, 0.295, 0.295, 0.656, 0.557,
+         0.863, 0.748, 0.787, 0.603, 0.787, 0.695, 0.635, 0.611, 0.732, 0.684, 0.989, 0.685,
+         0.611, 0.685, 0.39, 0.337, 0.39, 0.838, 0.5, 0.5, 0.613, 0.635, 0.55, 0.635, 0.615,
+         0.352, 0.635, 0.634, 0.278, 0.278, 0.579, 0.278, 0.974, 0.634, 0.612, 0.635, 0.635,
+         0.411, 0.521, 0.392, 0.634, 0.592, 0.818, 0.592, 0.592, 0.525, 0.636, 0.337, 0.636,
+         0.838, 0.764, 0.636, 0.5, 0.318, 0.838, 0.838, 0.838, 0.838, 0.5), strict=True)),
+    True: dict(zip(
+        " !\"#$%&'()*+,-./0123456789:;<=>?@ABCDEFGHIJKLMNOPQRSTUVWXYZ[\\]^_`"
+        "abcdefghijklmnopqrstuvwxyz{|}~Ωµ–·≤≥×±°",
+        (0.348, 0.456, 0.521, 0.838, 0.696, 1.002, 0.872, 0.306, 0.457, 0.457, 0.523, 0.838,
+         0.38, 0.415, 0.38, 0.365, *[0.696] * 10, 0.4, 0.4, 0.838, 0.838, 0.838, 0.58, 1.0,
+         0.774, 0.762, 0.734, 0.83, 0.683, 0.683, 0.821, 0.837, 0.372, 0.372, 0.775, 0.637,
+         0.995, 0.837, 0.85, 0.733, 0.85, 0.77, 0.72, 0.682, 0.812, 0.774, 1.103, 0.771,
+         0.724, 0.725, 0.457, 0.365, 0.457, 0.838, 0.5, 0.5, 0.675, 0.716, 0.593, 0.716,
+         0.678, 0.435, 0.716, 0.712, 0.343, 0.343, 0.665, 0.343, 1.042, 0.712, 0.687, 0.716,
+         0.716, 0.493, 0.595, 0.478, 0.712, 0.652, 0.924, 0.645, 0.652, 0.582, 0.712, 0.365,
+         0.712, 0.838, 0.85, 0.736, 0.5, 0.38, 0.838, 0.838, 0.838, 0.838, 0.5), strict=True)),
+}
 
 
-def _bar_colours(labels: Sequence[str], taken: Sequence[str]) -> list[str]:
-    """Fill colours for stacked bars: yellow is fine as a fill, so it joins the series."""
-    free = [c for c in (*SERIES, YELLOW) if c not in taken]
-    return [free[i % len(free)] for i in range(len(labels))]
+def text_width(text: str, size: float, *, bold: bool = False) -> float:
+    """Width of ``text`` set in the charts' font at ``size`` px (an estimate that errs
+    wide: no kerning, unknown characters a full em). [px]"""
+    table = _EM[bool(bold)]
+    return float(size) * sum(table.get(ch, 1.0) for ch in str(text))
+
+
+def _wrap(text: str, size: float, limit: float, *, bold: bool = False) -> list[str]:
+    """``text`` broken at spaces into lines no wider than ``limit`` px (a word longer
+    than that stays whole on its own line)."""
+    lines: list[str] = []
+    for word in str(text).split(" "):
+        if lines and text_width(f"{lines[-1]} {word}", size, bold=bold) <= limit:
+            lines[-1] = f"{lines[-1]} {word}"
+        else:
+            lines.append(word)
+    return lines
+
+
+_QUANTITY = re.compile(r"\s*[-+]?\d+(?:\.\d+)?\s?[TGMkmµnpf]?Ω")
+
+
+def series_key(name: str) -> str:
+    """The key of a series in :data:`SERIES_COLOURS`: its name without a resistor value
+    (``"rise, Rs 27 Ω"`` -> ``"rise, Rs"``), so that a series keeps its colour when the
+    value changes."""
+    return _QUANTITY.sub("", str(name)).strip()
+
+
+def series_colours(names: Sequence[str], taken: Sequence[str] = ()) -> list[str]:
+    """A colour for each series name, from :data:`SERIES_COLOURS`.
+
+    Parameters
+    ----------
+    names : sequence of str
+        The series of one chart. [1]
+    taken : sequence of str, optional
+        Colours the chart already gives to fixed roles (limits, bands...). [1]
+
+    Returns
+    -------
+    list of str
+        One colour per name.  A name the table knows always gets its colour; any other
+        name gets the first colour of :data:`SERIES` free in this chart, starting from a
+        stable hash of its name (the same for the same set of names), never a status
+        colour.
+    """
+    import zlib
+
+    out: list[str | None] = [SERIES_COLOURS.get(series_key(n)) for n in names]
+    used = set(taken) | {c for c in out if c is not None}
+    for i, name in enumerate(names):
+        if out[i] is not None:
+            continue
+        start = zlib.crc32(series_key(name).encode("utf-8")) % len(SERIES)
+        ring = SERIES[start:] + SERIES[:start]
+        free = [c for c in ring if c not in used] or list(ring)
+        out[i] = free[0]
+        used.add(free[0])
+    return [str(c) for c in out]
 
 
 def _scale_pair(domain: list[str], colours: list[str]):
@@ -272,32 +396,90 @@ def _scale_pair(domain: list[str], colours: list[str]):
     return alt.Scale(domain=list(domain), range=list(colours))
 
 
-def _legend(title: str | None, orient: str = "right"):
+_LEGEND_SIZE = 11  # legend label font size [px]
+_LEGEND_SYMBOL = 20  # a legend entry's symbol and the gap after it [px]
+_LEGEND_GAP = 14  # between two legend columns [px]
+_AXIS_ROOM = 66  # a y axis of numbers with its title, left of the plot [px]
+_ROW = 44  # a timing budget's row: the path's name and margin above its bar [px]
+
+
+def _columns(labels: Sequence[str], room: float) -> int:
+    """How many legend columns fit ``labels`` into ``room`` px, entries in rows."""
+    widths = [_LEGEND_SYMBOL + text_width(s, _LEGEND_SIZE) for s in labels]
+    for k in range(max(len(widths), 1), 1, -1):
+        cols = [max(widths[j::k]) for j in range(k)]
+        if sum(cols) + _LEGEND_GAP * (k - 1) <= room:
+            return k
+    return 1
+
+
+def _plot_room(width: int, left: float = _AXIS_ROOM, right: float = 12.0) -> float:
+    """The plot's width in a chart ``width`` px wide with ``left`` px of axis before it and
+    ``right`` px after it (estimates that err large, so the plot errs small). [px]"""
+    return max(float(width) - left - right, 60.0)
+
+
+def _legend(title: str | None, labels: Sequence[str] = (), room: float = _WIDTH, **extra):
+    """A legend below the plot, starting at its left edge, its entries in as many
+    columns as fit ``room`` px (the plot's width, :func:`_plot_room`); no label is cut."""
     alt = _alt()
-    return alt.Legend(title=title, orient=orient, labelLimit=260, symbolOpacity=0.9)
+    head = _wrap(title, _LEGEND_SIZE, room - 4, bold=True) if title else None
+    props = dict(title=head[0] if head and len(head) == 1 else head, orient="bottom",
+                 direction="horizontal", titleLimit=int(room), titleOrient="top",
+                 columns=_columns(list(labels), room), labelLimit=int(room),
+                 labelFontSize=_LEGEND_SIZE, titleFontSize=_LEGEND_SIZE,
+                 columnPadding=_LEGEND_GAP, rowPadding=4, symbolOpacity=0.9)
+    props.update(extra)
+    return alt.Legend(**props)
 
 
-def _axis(title: str):
+def _axis(title: str, *, flush: bool = True):
+    """A quantitative axis; ``flush`` for a horizontal one."""
     alt = _alt()
     # "~r": decimal notation, trailing zeros off (no "1.4e+2", no thousands commas);
-    # Vega sets the precision from the tick step.
-    return alt.Axis(title=title, format="~r")
+    # Vega sets the precision from the tick step.  On a horizontal axis, labels near an
+    # end sit flush inside it and any still past it are hidden (a label centred on a
+    # tick near the end could reach past the chart).  Labels that would overlap are
+    # left out.
+    props = dict(title=title, format="~r", labelOverlap=True)
+    if flush:
+        props.update(labelFlush=_FLUSH_PX, labelBound=True)
+    return alt.Axis(**props)
 
 
-def _q(field: str, title: str, *, log: bool = False, channel: str = "x"):
+def _q(field: str, title: str, *, log: bool = False, channel: str = "x", pad: bool = False):
+    """A quantitative position channel; ``pad`` keeps the outermost values ``_PAD_PX``
+    inside the frame (a limit line is never drawn on the frame itself)."""
     alt = _alt()
-    scale = alt.Scale(type="log") if log else alt.Undefined
+    props = {}
+    if log:
+        props["type"] = "log"
+    if pad:
+        props.update(padding=_PAD_PX, nice=False)
+        if not log:
+            props["zero"] = False
+    scale = alt.Scale(**props) if props else alt.Undefined
     cls = alt.X if channel == "x" else alt.Y
-    return cls(f"{field}:Q", scale=scale, axis=_axis(title))
+    return cls(f"{field}:Q", scale=scale, axis=_axis(title, flush=channel == "x"))
 
 
 def _titled(chart, title: str | None, subtitle: str | None, width: int, height: int):
+    """Size, title and font of a chart: ``width`` is the whole chart's (axes and legend
+    included), ``height`` the plot's; a title or subtitle wider than the chart wraps."""
     alt = _alt()
-    props = {"width": width, "height": height}
+    props = {"width": int(width), "height": int(height),
+             "autosize": alt.AutoSizeParams(type="fit-x", contains="padding")}
     if title:
-        props["title"] = (alt.TitleParams(title, subtitle=subtitle, anchor="start")
-                          if subtitle else alt.TitleParams(title, anchor="start"))
-    return chart.properties(**props)
+        room = float(width) - 10.0
+        params = {"text": _wrap(title, 13, room, bold=True), "anchor": "start"}
+        if subtitle:
+            params["subtitle"] = _wrap(subtitle, 11, room)
+            params["subtitleFontSize"] = 11
+        props["title"] = alt.TitleParams(fontSize=13, **params)
+    # Legends below the plot stack one under the other (Vega's default puts them side by
+    # side, past the chart's width); the layout object goes to Vega as an expression.
+    stack = alt.ExprRef(expr="{bottom: {direction: 'vertical', anchor: 'start'}}")
+    return chart.properties(**props).configure(font=FONT).configure_legend(layout=stack)
 
 
 def _unique(labels) -> list[str]:
@@ -341,11 +523,13 @@ def pullup_window(cb, rp_min, rp_max, *, chosen_cb, chosen_rp,
     chosen_rp : float
         The pull-up chosen for it. [Ω]
     title, subtitle : str, optional
-        Chart title and a line below it. [1]
+        Chart title and a line below it (each wrapped to the width). [1]
     rp_min_label, rp_max_label, region_label, chosen_label : str, optional
         Legend entries; ``chosen_label`` defaults to the point's values. [1]
-    width, height : int, optional
-        Plot size. [px]
+    width : int, optional
+        Width of the whole chart, axes and legend included. [px]
+    height : int, optional
+        Height of the plot. [px]
 
     Returns
     -------
@@ -378,9 +562,9 @@ def pullup_window(cb, rp_min, rp_max, *, chosen_cb, chosen_rp,
     fy, uy = display_scale(np.concatenate([lo[ok_lo], hi[ok_hi], [y0]]), "Ω", log=True)
     chosen_label = chosen_label or f"chosen: {format_si(y0, 'Ω')} at {format_si(x0, 'F')}"
     domain = [region_label, rp_min_label, rp_max_label, chosen_label]
-    bounds = _colours([rp_min_label, rp_max_label], taken=(REGION, OPERATING))
-    colour = alt.Color("series:N", scale=_scale_pair(domain, [REGION, *bounds, OPERATING]),
-                       legend=_legend(None))
+    colour = alt.Color("series:N",
+                       scale=_scale_pair(domain, [REGION, BOUND_LOW, BOUND_HIGH, OPERATING]),
+                       legend=_legend(None, domain, _plot_room(width)))
     x_title = _title("Bus capacitance Cb", ux)
     y_title = _title("Pull-up resistance Rp", uy)
 
@@ -394,15 +578,18 @@ def pullup_window(cb, rp_min, rp_max, *, chosen_cb, chosen_rp,
                 for a, b in zip(c[ok_hi], hi[ok_hi], strict=True)])
     point = [{"cb": _num(x0 * fx), "rp": _num(y0 * fy), "series": chosen_label}]
 
+    # both axes padded: Rp(min), flat, would otherwise lie on the frame
     area = alt.Chart(_data(band)).mark_area(opacity=_REGION_OPACITY).encode(
-        x=_q("cb", x_title, log=True), y=_q("lo", y_title, log=True, channel="y"),
-        y2="hi:Q", color=colour)
+        x=_q("cb", x_title, log=True, pad=True),
+        y=_q("lo", y_title, log=True, channel="y", pad=True), y2="hi:Q", color=colour)
     curves = alt.Chart(_data(lines)).mark_line(strokeWidth=2).encode(
-        x=_q("cb", x_title, log=True), y=_q("rp", y_title, log=True, channel="y"),
+        x=_q("cb", x_title, log=True, pad=True),
+        y=_q("rp", y_title, log=True, channel="y", pad=True),
         color=colour, detail="series:N")
     marker = alt.Chart(_data(point)).mark_point(
         shape="diamond", filled=True, size=140, opacity=1).encode(
-        x=_q("cb", x_title, log=True), y=_q("rp", y_title, log=True, channel="y"),
+        x=_q("cb", x_title, log=True, pad=True),
+        y=_q("rp", y_title, log=True, channel="y", pad=True),
         color=colour,
         tooltip=[alt.Tooltip("cb:Q", title=x_title), alt.Tooltip("rp:Q", title=y_title)])
     return _titled(alt.layer(area, curves, marker), title, subtitle, width, height)
@@ -410,6 +597,7 @@ def pullup_window(cb, rp_min, rp_max, *, chosen_cb, chosen_rp,
 
 def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
                  log_x: bool = False, log_y: bool = False, edge_label: str = "Edge time",
+                 curves_title: str | None = "Curve",
                  title: str | None = "Edge time against load", subtitle: str | None = None,
                  width: int = _WIDTH, height: int = _HEIGHT) -> alt.LayerChart:
     """Edge time against load capacitance, one curve per driver or edge.
@@ -433,16 +621,20 @@ def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
         Logarithmic load / time axis. [1]
     edge_label : str, optional
         What the time axis shows, e.g. ``"Rise time 10-90 %"``. [1]
+    curves_title : str, optional
+        Title of the curves' legend, e.g. what the curves model. [1]
     title, subtitle : str, optional
-        Chart title and a line below it. [1]
-    width, height : int, optional
-        Plot size. [px]
+        Chart title and lines below it (wrapped to the width). [1]
+    width : int, optional
+        Width of the whole chart, axes and legends included. [px]
+    height : int, optional
+        Height of the plot. [px]
 
     Returns
     -------
     altair.LayerChart
         Curves (lines), then datasheet points and the operating point (point marks
-        with a shape legend).
+        with a shape legend) with its time and load written beside it.
     """
     alt = _alt()
     x = _array(loads, "loads")
@@ -506,20 +698,22 @@ def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
     pts = ([{"load": _num(a * fx), "t": _num(b * fy), "series": s, "kind": "datasheet"}
             for a, b, s, keep in zip(px, py, plabels, okp, strict=True) if keep]
            if okp.any() else None)
-    op_rows = ([{"load": _num(op[0] * fx), "t": _num(op[1] * fy), "kind": op[2]}]
+    op_rows = ([{"load": _num(op[0] * fx), "t": _num(op[1] * fy), "kind": op[2],
+                 "note": f"{format_si(op[1], 's')} at {format_si(op[0], 'F')}"}]
                if op else None)
     known = _reuse(("edge_vs_load", x_title, y_title, bool(log_x), bool(log_y),
-                    tuple(domain), tuple(kinds), tuple(shapes), title, subtitle, width,
-                    height),
+                    tuple(domain), tuple(kinds), tuple(shapes), curves_title, title,
+                    subtitle, width, height),
                    [rows] + ([pts] if pts is not None else [])
                    + ([op_rows] if op_rows is not None else []))
     if known is not None:
         return known
 
-    colour = alt.Color("series:N", scale=_scale_pair(domain, _colours(domain, (OPERATING,))),
-                       legend=_legend("Curve"))
+    colour = alt.Color("series:N", scale=_scale_pair(domain, series_colours(domain,
+                                                                             (OPERATING,))),
+                       legend=_legend(curves_title, domain, _plot_room(width)))
     shape = alt.Shape("kind:N", scale=alt.Scale(domain=kinds, range=shapes),
-                      legend=_legend("Points"))
+                      legend=_legend("Points", kinds, _plot_room(width)))
     layers = [alt.Chart(_data(rows)).mark_line(strokeWidth=2).encode(
         x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
         color=colour, detail="series:N")]
@@ -534,12 +728,18 @@ def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
             filled=True, size=160, opacity=1, color=OPERATING).encode(
             x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
             shape=shape, tooltip=tips))
+        # its values written beside it: the cross is read on its own, not off a curve
+        layers.append(alt.Chart(_data(op_rows)).mark_text(
+            align="left", baseline="middle", dx=9, fontSize=11, fontWeight="bold",
+            color=OPERATING).encode(
+            x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
+            text="note:N"))
     return _titled(alt.layer(*layers), title, subtitle, width, height)
 
 
 def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
               title: str | None = "Receiver waveforms", subtitle: str | None = None,
-              band_label: str = "undefined (VIL to VIH)", threshold_label: str = "VIL / VIH",
+              band_label: str = "between VIL and VIH", threshold_label: str = "VIL / VIH",
               width: int = _WIDTH, height: int = _HEIGHT) -> alt.LayerChart:
     """Receiver voltage against time, with the band between VIL and VIH shaded.
 
@@ -557,11 +757,13 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
     vdd : float, optional
         Supply, drawn as a dotted line when given. [V]
     title, subtitle : str, optional
-        Chart title and a line below it. [1]
+        Chart title and a line below it (each wrapped to the width). [1]
     band_label, threshold_label : str, optional
         Legend entries of the band and of the threshold lines. [1]
-    width, height : int, optional
-        Plot size. [px]
+    width : int, optional
+        Width of the whole chart, axes and legend included. [px]
+    height : int, optional
+        Height of the plot. [px]
 
     Returns
     -------
@@ -623,24 +825,25 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
 
     colour = alt.Color("series:N",
                        scale=_scale_pair(fixed + names,
-                                         fixed_colours + _colours(names, fixed_colours)),
-                       legend=_legend(None))
+                                         fixed_colours + series_colours(names, fixed_colours)),
+                       legend=_legend(None, fixed + names, _plot_room(width)))
+    # the voltage axis padded: VDD or a threshold is never drawn on the frame
     band = alt.Chart(_data(band_rows)).mark_rect(
-        opacity=_BAND_OPACITY).encode(y=_q("lo", y_title, channel="y"), y2="hi:Q",
+        opacity=_BAND_OPACITY).encode(y=_q("lo", y_title, channel="y", pad=True), y2="hi:Q",
                                       color=colour)
     rules = alt.Chart(_data(levels)).mark_rule(strokeDash=[6, 3]).encode(
-        y=_q("v", y_title, channel="y"), color=colour)
+        y=_q("v", y_title, channel="y", pad=True), color=colour)
     words = alt.Chart(_data(levels)).mark_text(
         align="right", baseline="bottom", dx=-4, dy=-2, fontSize=10, fontWeight="bold",
-        color=LIMIT).encode(x=alt.value(width), y=_q("v", y_title, channel="y"),
+        color=LIMIT).encode(x=alt.value("width"), y=_q("v", y_title, channel="y", pad=True),
                             text="text:N")
     layers = [band, rules, words]
     if vdd_label:
         layers.append(alt.Chart(_data(vdd_rows))
                       .mark_rule(strokeDash=[2, 3]).encode(
-                          y=_q("v", y_title, channel="y"), color=colour))
+                          y=_q("v", y_title, channel="y", pad=True), color=colour))
     layers.append(alt.Chart(_data(rows)).mark_line(strokeWidth=1.8).encode(
-        x=_q("t", x_title), y=_q("v", y_title, channel="y"), color=colour,
+        x=_q("t", x_title), y=_q("v", y_title, channel="y", pad=True), color=colour,
         detail="series:N"))
     return _titled(alt.layer(*layers), title, subtitle, width, height)
 
@@ -668,14 +871,17 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
     available_label : str, optional
         Legend entry of the tick. [1]
     title, subtitle : str, optional
-        Chart title and a line below it. [1]
-    width, height : int, optional
-        Plot size; the height defaults to 34 px per path. [px]
+        Chart title and a line below it (each wrapped to the width). [1]
+    width : int, optional
+        Width of the whole chart, axes, margins and legend included. [px]
+    height : int, optional
+        Height of the plot; 44 px per path by default. [px]
 
     Returns
     -------
     altair.LayerChart
-        Stacked bars (x: time, y: path), the available-time ticks, the margin labels.
+        Stacked bars (x: time, y: path), the available-time ticks, each path's name
+        above its bar at the left and its margin at the right.
     """
     alt = _alt()
     items = []
@@ -721,34 +927,54 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
         raise InputError(M.LABEL_IN_LEGEND.format(what="component name"),
                          field="rows", value=sorted(set(comps) & set(fixed)),
                          expected="other names")
-    colour = alt.Color("series:N",
-                       scale=_scale_pair(comps + fixed, _bar_colours(comps, fixed_colours)
-                                         + fixed_colours),
-                       legend=_legend(None, orient="bottom"))
-    y = alt.Y("path:N", sort=paths, axis=alt.Axis(title="Path", labelLimit=220))
-
+    # Each path's name is written above its bar, at the left, and its margin at the
+    # right: no axis labels to measure, and the plot gets the chart's whole width.
+    n_rows = len(paths)
+    plot_h = height if height is not None else max(80, _ROW * n_rows)
     bars = [{"path": p, "series": c, "t": _num(d * fx), "order": i}
             for i, (p, c, d) in enumerate(items)]
+    ticks = ([{"path": p, "t": _num(v * fx), "series": available_label}
+              for p, v in avail.items()] if avail else None)
+    names = [{"path": p} for p in paths]
+    notes = ([{"path": p, "text": f"margin {'+' if m >= 0 else ''}{format_si(m, 's')}",
+               "series": stat[p]} for p, m in marg.items()] if marg else None)
+    known = _reuse(("timing_budget", x_title, tuple(paths), tuple(comps), tuple(fixed),
+                    available_label, title, subtitle, width, plot_h),
+                   [bars] + ([ticks] if ticks else []) + [names] + ([notes] if notes else []))
+    if known is not None:
+        return known
+
+    band = plot_h / n_rows
+    colour = alt.Color("series:N",
+                       scale=_scale_pair(comps + fixed, series_colours(comps, fixed_colours)
+                                         + fixed_colours),
+                       legend=_legend(None, comps + fixed, _plot_room(width, left=12)))
+    y = alt.Y("path:N", sort=paths, axis=None,
+              scale=alt.Scale(paddingInner=0, paddingOuter=0))
+    x_pad = alt.Scale(padding=_PAD_PX, nice=False)  # an available tick clear of the frame
+    bar_h = 0.4 * band  # the bar sits low in its row, the words above it
+    drop = 0.1 * band
+    above = -(0.5 * bar_h - drop + 3)
+
     layers = [alt.Chart(_data(bars)).mark_bar(
-        height={"band": 0.6}, stroke="white", strokeWidth=1).encode(
-        x=alt.X("t:Q", stack="zero", axis=_axis(x_title)), y=y, color=colour,
+        height=bar_h, yOffset=drop, stroke="white", strokeWidth=1).encode(
+        x=alt.X("t:Q", stack="zero", axis=_axis(x_title), scale=x_pad), y=y, color=colour,
         order="order:Q",
         tooltip=[alt.Tooltip("path:N"), alt.Tooltip("series:N", title="component"),
                  alt.Tooltip("t:Q", title=x_title)])]
-    if avail:
-        ticks = [{"path": p, "t": _num(v * fx), "series": available_label}
-                 for p, v in avail.items()]
+    if ticks:
         layers.append(alt.Chart(_data(ticks)).mark_tick(
-            thickness=3, bandSize=0, size=26, opacity=1).encode(
-            x=alt.X("t:Q", axis=_axis(x_title)), y=y, color=colour))
-    if marg:
-        notes = [{"path": p, "text": f"margin {'+' if m >= 0 else ''}{format_si(m, 's')}",
-                  "series": stat[p]} for p, m in marg.items()]
+            thickness=3, bandSize=0, size=bar_h + 4, yOffset=drop, opacity=1).encode(
+            x=alt.X("t:Q", axis=_axis(x_title), scale=x_pad), y=y, color=colour))
+    layers.append(alt.Chart(_data(names)).mark_text(
+        align="left", baseline="bottom", dx=2, dy=above, fontSize=11, color=INK).encode(
+        x=alt.value(0), y=y, text="path:N"))
+    if notes:
         layers.append(alt.Chart(_data(notes)).mark_text(
-            align="left", dx=8, fontSize=11, fontWeight="bold").encode(
-            x=alt.value(width), y=y, text="text:N", color=colour))
-    return _titled(alt.layer(*layers), title, subtitle, width,
-                   height if height is not None else max(80, 34 * len(paths)))
+            align="right", baseline="bottom", dx=-2, dy=above, fontSize=11,
+            fontWeight="bold").encode(
+            x=alt.value("width"), y=y, text="text:N", color=colour))
+    return _titled(alt.layer(*layers), title, subtitle, width, plot_h)
 
 
 def histogram(samples, *, limit=None, unit: str, label: str, limit_kind: str = "max",
@@ -778,8 +1004,10 @@ def histogram(samples, *, limit=None, unit: str, label: str, limit_kind: str = "
         fraction the engine reported. [1]
     count_label : str, optional
         Title of the count axis. [1]
-    width, height : int, optional
-        Plot size. [px]
+    width : int, optional
+        Width of the whole chart, axes and legend included. [px]
+    height : int, optional
+        Height of the plot. [px]
 
     Returns
     -------
@@ -840,20 +1068,24 @@ def histogram(samples, *, limit=None, unit: str, label: str, limit_kind: str = "
     else:
         lim_label = f"limit ({limit_kind}) {format_si(lim, unit) if unit else f'{lim:.4g}'}"
         domain, colours = ["pass", "fail", lim_label], [PASS, FAIL, LIMIT]
-    colour = alt.Color("series:N", scale=_scale_pair(domain, colours), legend=_legend(None))
+    colour = alt.Color("series:N", scale=_scale_pair(domain, colours),
+                       legend=_legend(None, domain, _plot_room(width)))
+    x_scale = alt.Scale(zero=False, padding=_PAD_PX, nice=False)  # the limit off the frame
     bars = [{"a": _num(edges[i] * fx), "b": _num(edges[i + 1] * fx), "n": int(counts[i]),
              "z": 0, "series": str(status[i])} for i in range(counts.size)]
     layers = [alt.Chart(_data(bars)).mark_rect(
         opacity=0.85, stroke="white", strokeWidth=0.5).encode(
-        x=alt.X("a:Q", axis=_axis(x_title), scale=alt.Scale(zero=False)), x2="b:Q",
-        y=alt.Y("n:Q", axis=alt.Axis(title=count_label, format="~s")), y2="z:Q",
+        x=alt.X("a:Q", axis=_axis(x_title), scale=x_scale), x2="b:Q",
+        y=alt.Y("n:Q", axis=alt.Axis(title=count_label, format="~s", labelOverlap=True)),
+        y2="z:Q",
         color=colour,
         tooltip=[alt.Tooltip("a:Q", title="from"), alt.Tooltip("b:Q", title="to"),
                  alt.Tooltip("n:Q", title="samples")])]
     if lim is not None:
         layers.append(alt.Chart(_data([{"x": _num(lim * fx), "series": lim_label}]))
                       .mark_rule(strokeWidth=2, strokeDash=[6, 3]).encode(
-                          x=alt.X("x:Q", axis=_axis(x_title)), color=colour))
+                          x=alt.X("x:Q", axis=_axis(x_title), scale=x_scale),
+                          color=colour))
     return _titled(alt.layer(*layers), title if title is not None else f"Monte Carlo: {label}",
                    subtitle, width, height)
 

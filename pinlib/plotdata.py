@@ -142,6 +142,14 @@ class EdgeLoadData:
         Series resistor on the line. [Ω]
     model : str
         ``"lumped"`` or ``"distributed"``: how the engine solved the line. [1]
+    operating_label : str
+        What the operating point is, for a legend: the far end of this line and the
+        model the engine solved it with. [1]
+    curves_title : str
+        What the curves are, for a legend title. [1]
+    subtitle : str
+        A chart subtitle saying which to read: the curves (the driver into a lumped
+        load at its pin) or the operating point (the engine's far end on the line). [1]
     """
 
     bus: str
@@ -154,6 +162,9 @@ class EdgeLoadData:
     operating_fall: float
     rs: float
     model: str
+    operating_label: str = "far end of this line"
+    curves_title: str = "Driver model into a lumped load"
+    subtitle: str = ""
 
 
 @dataclass(frozen=True)
@@ -384,9 +395,9 @@ def edge_vs_load_data(bus: Bus, design: Design, signal: str, *, driver: str | No
     Returns
     -------
     EdgeLoadData
-        Curves of the driver model (rise and fall, 10–90 % and the levels of any
-        datasheet point, without and with the line's series resistor), the datasheet
-        points, and the engine's operating point.
+        Curves of the driver model (rise and fall at 10–90 % and at the levels of any
+        datasheet point, and at 10–90 % with the line's series resistor), the datasheet
+        points, the engine's operating point, and labels that say which is which.
 
     Notes
     -----
@@ -415,16 +426,24 @@ def edge_vs_load_data(bus: Bus, design: Design, signal: str, *, driver: str | No
     levels = ["10-90"] + sorted({e.levels for e in edges} - {"10-90"})
     top = 1.25 * max([load0, 20e-12] + pts_x)
     loads = np.linspace(0.0, top, max(int(points), 2))
+    # The datasheet's levels without the series resistor (where its points are); the
+    # resistor's curves at 10-90 %, the levels the line's checks use.
+    wanted = [(0.0, lv) for lv in levels] + ([(la.rs, "10-90")] if la.rs > 0 else [])
     curves = {}
-    for rs in ([0.0, la.rs] if la.rs > 0 else [0.0]):
+    for rs, lv in wanted:
         for edge in ("rise", "fall"):
-            for lv in levels:
-                curves[_curve_name(edge, lv, rs)] = np.asarray(
-                    drv.edge_vs_load(model, loads, edge, lv, r_series=rs), dtype=float)
-    return EdgeLoadData(bus.id, signal, ref, loads, curves,
-                        (np.array(pts_x), np.array(pts_y), pts_n),
-                        (load0, float(case.rise.t_edge)), float(case.fall.t_edge),
-                        float(la.rs), "distributed" if case.distributed else "lumped")
+            curves[_curve_name(edge, lv, rs)] = np.asarray(
+                drv.edge_vs_load(model, loads, edge, lv, r_series=rs), dtype=float)
+    kind = "distributed" if case.distributed else "lumped"
+    line_model = "transmission-line model" if case.distributed else "lumped model"
+    return EdgeLoadData(
+        bus.id, signal, ref, loads, curves, (np.array(pts_x), np.array(pts_y), pts_n),
+        (load0, float(case.rise.t_edge)), float(case.fall.t_edge), float(la.rs), kind,
+        operating_label=f"far end of this line ({line_model})",
+        curves_title="Driver model into a lumped load at its pin",
+        subtitle=("Curves: the driver alone into a lumped load (datasheet conditions). "
+                  f"Cross: the rise at the far end of this line ({line_model}), the "
+                  "figure the checks use."))
 
 
 def _receiver_levels(la, ref: str) -> tuple[float, float, list[str]]:

@@ -117,28 +117,140 @@ TITLES = {
 
 
 # --------------------------------------------------------------------------- palette
-def test_palette_is_okabe_ito_and_roles_are_distinct():
+def test_palette_roles_are_okabe_ito_and_series_are_never_status_colours():
     published = set(OKABE_ITO_RGB.values())
     names = ["PASS", "WARN", "FAIL", "REGION", "UNDEFINED", "LIMIT", "OPERATING", "INK"]
     for name in names:
         assert _rgb(getattr(charts, name)) in published, name
-    assert all(_rgb(c) in published for c in charts.SERIES)
     assert len({charts.PASS, charts.WARN, charts.FAIL}) == 3
+    status = set(charts.STATUS_COLOURS.values())
+    assert status.isdisjoint(charts.SERIES)
+    assert set(charts.SERIES_COLOURS.values()) <= set(charts.SERIES)
     assert charts.YELLOW not in charts.SERIES       # yellow is too weak for a line on white
 
 
+# from memory: G. M. Machado, M. M. Oliveira, L. A. F. Fernandes, "A physiologically-based
+# model for simulation of color vision deficiency", IEEE TVCG 15(6), 2009, table 1,
+# severity 1.0 (linear RGB)
+CVD = {
+    "protanopia": [[0.152286, 1.052583, -0.204868], [0.114503, 0.786281, 0.099216],
+                   [-0.003882, -0.048116, 1.051998]],
+    "deuteranopia": [[0.367322, 0.860646, -0.227968], [0.280085, 0.672501, 0.047413],
+                     [-0.011820, 0.042940, 0.968881]],
+    "tritanopia": [[1.255528, -0.076749, -0.178779], [-0.078411, 0.930809, 0.147602],
+                   [0.004733, 0.691367, 0.303900]],
+}
+
+
+def _lab(hex_colour: str, matrix=None) -> np.ndarray:
+    """CIELAB (D65) of an sRGB colour, seen through a colour-vision matrix."""
+    # published: IEC 61966-2-1 (sRGB) transfer curve and matrix; CIE 15 (CIELAB)
+    c = np.array(_rgb(hex_colour)) / 255.0
+    lin = np.where(c <= 0.04045, c / 12.92, ((c + 0.055) / 1.055) ** 2.4)
+    if matrix is not None:
+        lin = np.clip(np.array(matrix) @ lin, 0.0, 1.0)
+    xyz = np.array([[0.4124, 0.3576, 0.1805], [0.2126, 0.7152, 0.0722],
+                    [0.0193, 0.1192, 0.9505]]) @ lin
+    t = xyz / np.array([0.95047, 1.0, 1.08883])
+    f = np.where(t > (6 / 29) ** 3, np.cbrt(t), t / (3 * (6 / 29) ** 2) + 4 / 29)
+    return np.array([116 * f[1] - 16, 500 * (f[0] - f[1]), 200 * (f[1] - f[2])])
+
+
+def _worst_difference(a: str, b: str) -> float:
+    """The smallest CIELAB difference of two colours, for normal and deficient vision."""
+    return min(float(np.linalg.norm(_lab(a, m) - _lab(b, m)))
+               for m in [None, *CVD.values()])
+
+
+def test_worst_difference_of_the_okabe_ito_pairs_it_was_designed_for():
+    # derived: black and white differ by 100 in L* for every kind of vision
+    assert _worst_difference("#000000", "#FFFFFF") == pytest.approx(100.0, abs=0.1)
+    # derived from the model: each simulation keeps a neutral grey neutral (every row of
+    # its matrix sums to 1), which catches a mistyped coefficient
+    for matrix in CVD.values():
+        assert np.sum(matrix, axis=1) == pytest.approx([1.0, 1.0, 1.0], abs=2e-6)
+        assert _lab("#777777", matrix) == pytest.approx(_lab("#777777"), abs=0.05)
+    # derived: vermillion and bluish green, far apart to most eyes, come closer for a
+    # deuteranope than for normal vision
+    normal = np.linalg.norm(_lab(charts.FAIL) - _lab(charts.PASS))
+    deutan = np.linalg.norm(_lab(charts.FAIL, CVD["deuteranopia"])
+                            - _lab(charts.PASS, CVD["deuteranopia"]))
+    assert deutan < normal
+
+
 @pytest.mark.parametrize("name", sorted(ALL))
-def test_every_chart_has_a_legend_with_distinct_colours(name):
-    chart = ALL[name]()
+def test_legend_colours_stay_apart_for_colour_blind_readers(name):
+    scale = _colour_scale(ALL[name]())
+    colours = sorted(set(scale["range"]))
+    worst = min((_worst_difference(a, b), a, b) for i, a in enumerate(colours)
+                for b in colours[i + 1:])
+    # common practice, no source: the closest Okabe–Ito pairs a chart uses (orange and
+    # vermillion, bluish green and sky blue) differ by about 16-18 under simulation
+    assert worst[0] >= 15.0, worst
+
+
+def test_every_series_pinlib_draws_has_its_own_fixed_colour():
+    from pinlib import plotdata
+
+    comps = {c for terms in plotdata.BUDGET_COMPONENTS.values() for _, _, c in terms}
+    edges = [plotdata._curve_name(e, lv, 0.0) for e in ("rise", "fall")
+             for lv in ("10-90", "20-80")]
+    edges += [plotdata._curve_name(e, "10-90", rs) for rs in (27.0, 1500.0)
+              for e in ("rise", "fall")]
+    waves = [f"{e}, {case}" for e in ("rise", "fall") for case in ("no series R", "Rs 27 Ω")]
+    for group in (sorted(comps), edges, waves):
+        assert all(charts.series_key(n) in charts.SERIES_COLOURS for n in group), group
+    # the keys leave the resistor value out, nothing else
+    assert charts.series_key("fall 10-90, Rs 1.5 kΩ") == "fall 10-90, Rs"
+    assert charts.series_key("rise, Rs 27 Ω") == "rise, Rs"
+    assert charts.series_key("SCLK flight") == "SCLK flight"
+    # one colour per curve within a chart (the Rs value does not matter)
+    assert len(set(charts.series_colours(sorted(comps)))) == len(comps)
+    assert len(set(charts.series_colours(edges[:6]))) == 6
+    assert len(set(charts.series_colours(waves))) == 4
+
+
+def _colour_of(chart, series: str) -> str:
     scale = _colour_scale(chart)
-    assert len(scale["domain"]) == len(scale["range"])
-    # no two legend entries share a colour when the palette has room for them all
-    assert len(set(scale["range"])) == len(scale["range"])
-    assert all(_rgb(c) in set(OKABE_ITO_RGB.values()) for c in scale["range"])
-    for layer in _layers(chart):
-        colour = layer["encoding"].get("color")
-        if colour is not None and "field" in colour:
-            assert colour.get("legend", {}) is not None     # legend not switched off
+    return dict(zip(scale["domain"], scale["range"], strict=True))[series]
+
+
+def test_a_series_keeps_its_colour_whichever_others_are_drawn():
+    t = np.linspace(0.0, 20.0, 101) * NANO
+    up = 3.3 * (1 - np.exp(-t / (2 * NANO)))
+    four = {"rise, Rs 27 Ω": up, "fall, Rs 27 Ω": 3.3 - up, "rise, no series R": up,
+            "fall, no series R": 3.3 - up}
+    two = {"rise, no series R": up, "fall, no series R": 3.3 - up}
+    other_rs = {"rise, Rs 33 Ω": up, "rise, no series R": up}
+    colours = [_colour_of(charts.waveforms(t, traces, v_il=0.99, v_ih=2.31, vdd=3.3),
+                          "rise, no series R") for traces in (four, two, other_rs)]
+    assert len(set(colours)) == 1
+    assert (_colour_of(charts.waveforms(t, four, v_il=0.99, v_ih=2.31), "rise, Rs 27 Ω")
+            == _colour_of(charts.waveforms(t, other_rs, v_il=0.99, v_ih=2.31),
+                          "rise, Rs 33 Ω"))
+    # the SPI budget: "data or CS flight" with every other component, with one, and with
+    # every status
+    full = [("copi-setup U7", "output valid (t_valid)", 8 * NANO),
+            ("copi-setup U7", "data or CS flight", 1 * NANO),
+            ("copi-setup U7", "SCLK flight", -0.5 * NANO),
+            ("copi-setup U7", "required setup or hold", 5 * NANO),
+            ("cipo-setup U7", "bridging parts", 2 * NANO)]
+    flight = [("cs-setup U7", "data or CS flight", 1 * NANO)]
+    budgets = [charts.timing_budget(full, available=20 * NANO,
+                                    margins={"copi-setup U7": 6.5 * NANO}),
+               charts.timing_budget(flight),
+               charts.timing_budget(flight + full, available=10 * NANO,
+                                    margins={"cs-setup U7": 0.1 * NANO,
+                                             "copi-setup U7": 0.2 * NANO,
+                                             "cipo-setup U7": -1 * NANO},
+                                    status={"cs-setup U7": "pass", "copi-setup U7": "warn",
+                                            "cipo-setup U7": "fail"})]
+    seen = {_colour_of(b, "data or CS flight") for b in budgets}
+    assert seen == {charts.SERIES_COLOURS["data or CS flight"]}
+    assert seen.isdisjoint(charts.STATUS_COLOURS.values())
+    # a name the table does not know: the same colour for the same set of names
+    a = charts.series_colours(["U1 rise", "U1 fall"])
+    assert a == charts.series_colours(["U1 rise", "U1 fall"]) and len(set(a)) == 2
 
 
 # --------------------------------------------------------------------------- scaling
@@ -204,8 +316,8 @@ def test_pullup_window_rp_min_as_array_and_bad_shapes():
 
 def test_edge_vs_load_spec():
     chart = _edges()
-    assert _marks(chart) == ["line", "point", "point"]
-    lines, pts, op = _layers(chart)
+    assert _marks(chart) == ["line", "point", "point", "text"]
+    lines, pts, op, note = _layers(chart)
     assert lines["encoding"]["x"]["axis"]["title"] == "Load capacitance (pF)"
     assert lines["encoding"]["y"]["axis"]["title"] == "Edge time (ns)"
     assert "scale" not in lines["encoding"]["x"]              # linear by default
@@ -220,6 +332,9 @@ def test_edge_vs_load_spec():
     assert pts["encoding"]["shape"]["scale"]["domain"] == ["datasheet", "operating point"]
     assert op["mark"]["color"] == charts.OPERATING
     assert op["data"]["values"][0]["load"] == pytest.approx(22.0)
+    # the operating point's values are written beside it
+    assert note["data"]["values"][0]["note"] == "2.5 ns at 22 pF"
+    assert note["encoding"]["text"]["field"] == "note"
 
 
 def test_edge_vs_load_log_axes_and_errors():
@@ -252,7 +367,7 @@ def test_waveforms_spec():
     assert {r["series"] for r in values} == {"no series R", "33 Ω"}
     assert max(r["t"] for r in values) == pytest.approx(20.0)
     scale = _colour_scale(chart)
-    assert scale["domain"][:3] == ["undefined (VIL to VIH)", "VIL / VIH", "VDD 3.3 V"]
+    assert scale["domain"][:3] == ["between VIL and VIH", "VIL / VIH", "VDD 3.3 V"]
     assert scale["range"][:2] == [charts.UNDEFINED, charts.LIMIT]
 
 
@@ -268,8 +383,10 @@ def test_waveforms_errors():
 
 def test_timing_budget_spec():
     chart = _budget()
-    assert _marks(chart) == ["bar", "tick", "text"]
-    bars, ticks, notes = _layers(chart)
+    assert _marks(chart) == ["bar", "tick", "text", "text"]
+    bars, ticks, names, notes = _layers(chart)
+    assert [r["path"] for r in names["data"]["values"]] == ["COPI setup at U7", "CIPO setup"]
+    assert bars["encoding"]["y"]["axis"] is None          # the names stand above the bars
     assert bars["encoding"]["x"]["stack"] == "zero"
     assert bars["encoding"]["order"]["field"] == "order"
     assert bars["encoding"]["y"]["sort"] == ["COPI setup at U7", "CIPO setup"]
@@ -293,13 +410,13 @@ def test_timing_budget_per_path_available_status_and_errors():
                                  available={"COPI setup at U7": 20 * NANO, "CIPO setup": 21 * NANO},
                                  margins={"CIPO setup": 0.5 * NANO},
                                  status={"CIPO setup": "warn"})
-    bars, ticks, notes = _layers(chart)
+    bars, ticks, names, notes = _layers(chart)
     assert [r["t"] for r in ticks["data"]["values"]] == pytest.approx([20.0, 21.0])
     assert notes["data"]["values"] == [
         {"path": "CIPO setup", "text": "margin +500 ps", "series": "warn"}]
     assert charts.WARN in _colour_scale(chart)["range"]
     only_bars = charts.timing_budget(_BUDGET_ROWS[:2])
-    assert _marks(only_bars) == ["bar"]
+    assert _marks(only_bars) == ["bar", "text"]
     with pytest.raises(InputError, match="unknown path"):
         charts.timing_budget(_BUDGET_ROWS, available={"SCLK": 1e-8})
     with pytest.raises(InputError, match=r"rows\[0\]"):
@@ -405,6 +522,228 @@ def test_svg_shows_the_legend_entries():
         assert label in texts
 
 
+# --------------------------------------------------------------------------- layout
+_NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
+
+
+def _transform(text: str | None) -> np.ndarray:
+    """The 3x3 matrix of an SVG transform list (translate, rotate, scale)."""
+    m = np.eye(3)
+    for op, args in re.findall(r"(\w+)\(([^)]*)\)", text or ""):
+        v = [float(x) for x in re.findall(_NUMBER, args)]
+        if op == "translate":
+            step = np.array([[1, 0, v[0]], [0, 1, v[1] if len(v) > 1 else 0.0], [0, 0, 1]])
+        elif op == "rotate":
+            a = np.radians(v[0])
+            step = np.array([[np.cos(a), -np.sin(a), 0], [np.sin(a), np.cos(a), 0], [0, 0, 1]])
+        elif op == "scale":
+            step = np.diag([v[0], v[1] if len(v) > 1 else v[0], 1.0])
+        else:
+            raise AssertionError(f"transform {op} not handled")
+        m = m @ step
+    return m
+
+
+def _svg_texts(svg: str) -> tuple[float, float, list[tuple[str, tuple]]]:
+    """The SVG's size and each line of text with its box, the text's width estimated in
+    the charts' font (DejaVu Sans advance widths) and its height from ascent to
+    descent."""
+    import xml.etree.ElementTree as ET
+
+    root = ET.fromstring(svg)
+    out = []
+
+    def visit(node, m):
+        m = m @ _transform(node.get("transform"))
+        if node.get("opacity") == "0":      # hidden (an axis label that would overlap)
+            return
+        if node.tag.endswith("text"):
+            size = float(node.get("font-size", "11px").rstrip("px"))
+            bold = node.get("font-weight") == "bold"
+            anchor = node.get("text-anchor", "start")
+            spans = [c for c in node if c.tag.endswith("tspan")]
+            lines = ([(c.text or "", float(c.get("dy", 0))) for c in spans] if spans
+                     else [(node.text or "", 0.0)])
+            y = 0.0
+            for line, dy in lines:
+                y += dy
+                w = charts.text_width(line, size, bold=bold)
+                x0 = {"start": 0.0, "middle": -w / 2, "end": -w}[anchor]
+                # DejaVu Sans: ascenders 0.76 em above the baseline, descenders 0.24 below
+                corners = np.array([[x0, x0 + w, x0, x0 + w],
+                                    [y - 0.76 * size] * 2 + [y + 0.24 * size] * 2,
+                                    [1, 1, 1, 1]])
+                xy = (m @ corners)[:2]
+                out.append((line, (xy[0].min(), xy[1].min(), xy[0].max(), xy[1].max())))
+            return
+        for child in node:
+            visit(child, m)
+
+    visit(root, np.eye(3))
+    return float(root.get("width")), float(root.get("height")), out
+
+
+def _long_labels(width: int) -> dict:
+    """Every chart with the longest labels the widgets and the report give it."""
+    loads = np.linspace(0.0, 62.0, 31) * PICO
+    names = ["rise 10-90", "fall 10-90", "rise 10-90, Rs 27 Ω", "fall 10-90, Rs 27 Ω"]
+    times = np.vstack([2 * NANO + loads * k for k in (65.0, 50.0, 120.0, 105.0)])
+    t = np.linspace(0.0, 20.0, 201) * NANO
+    up = 3.3 * (1 - np.exp(-t / (2 * NANO)))
+    rows = [(f"{p} U7", c, d * NANO) for p in ("copi-setup", "copi-hold", "cipo-setup",
+                                               "cipo-hold", "cs-setup")
+            for c, d in (("output valid (t_valid)", 8.0), ("data or CS flight", 1.2),
+                         ("SCLK flight", -0.4), ("required setup or hold", 5.0),
+                         ("bridging parts", 2.0))]
+    paths = list(dict.fromkeys(p for p, _, _ in rows))
+    cb = np.geomspace(5, 800, 41) * PICO
+    return {
+        "pullup_window": lambda: charts.pullup_window(
+            cb, 1020.0, 1e-6 / (0.8473 * cb), chosen_cb=60.4 * PICO, chosen_rp=1800.0,
+            title="Before: pull-up window, sensors seg-a SDA",
+            subtitle="tr ≤ 1 µs, rise = 0.8473·Rp·Cb; Rp(min) 1.02 kΩ set by U2 (an "
+                     "I/O expander on the far side of the translator)",
+            chosen_label="design: 1.8 kΩ at 60.4 pF", width=width),
+        "edge_vs_load": lambda: charts.edge_vs_load(
+            loads, times, series=names,
+            points=(np.array([15, 50]) * PICO, np.array([2.5, 5.0]) * NANO,
+                    ["rise 10-90", "fall 10-90"]),
+            operating=(34.8 * PICO, 2.74 * NANO, "far end of this line (transmission-line "
+                                                 "model)"),
+            curves_title="Driver model into a lumped load at its pin",
+            title="Edge time against load: U1 driving flash SCLK",
+            subtitle="Curves: the driver alone into a lumped load (datasheet conditions). "
+                     "Cross: the rise at the far end of this line.", width=width),
+        "waveforms": lambda: charts.waveforms(
+            t, {"rise, Rs 27 Ω": up, "fall, Rs 27 Ω": 3.3 - up, "rise, no series R": up,
+                "fall, no series R": 3.3 - up}, v_il=0.99, v_ih=2.31, vdd=3.3,
+            title="Receiver waveforms: flash SCLK from U1", subtitle="at U2.sclk, U3.sclk",
+            width=width),
+        "timing_budget": lambda: charts.timing_budget(
+            rows, available=25 * NANO, margins=dict.fromkeys(paths, 13.8 * NANO) | {
+                "cipo-setup U7": -0.3 * NANO, "cs-setup U7": 0.4 * NANO},
+            status={"cipo-setup U7": "fail", "cs-setup U7": "warn"},
+            title="SPI timing budget, flash at 20 MHz",
+            subtitle="SPI mode 0; the tick is the time available", width=width),
+        "histogram": lambda: charts.histogram(
+            np.random.default_rng(7).normal(250.0, 25.0, 2000) * NANO, limit=300 * NANO,
+            unit="s", label="Rise time", subtitle="98.1 % of 2000 boards pass",
+            width=width),
+    }
+
+
+def _overlap(a, b) -> float:
+    """How far two boxes overlap in the direction they overlap least. [px]"""
+    return min(min(a[2], b[2]) - max(a[0], b[0]), min(a[3], b[3]) - max(a[1], b[1]))
+
+
+@pytest.mark.parametrize("width", [340, 480, 720])
+@pytest.mark.parametrize("name", sorted(ALL))
+def test_text_stays_inside_the_chart_and_clear_of_other_text(name, width):
+    svg = charts.to_svg(charts.spec(_long_labels(width)[name]))
+    w, h, texts = _svg_texts(svg)
+    assert w == width                                 # the chart fits the width it is given
+    assert len(texts) > 10
+    for text, (x0, y0, x1, y1) in texts:
+        # common practice, no source: 1 px for rounding in the renderer
+        assert -1.0 <= x0 and x1 <= w + 1.0, (text, x0, x1, w)
+        assert -1.0 <= y0 and y1 <= h + 1.0, (text, y0, y1, h)
+    for i, (ta, a) in enumerate(texts):
+        for tb, b in texts[i + 1:]:
+            assert _overlap(a, b) <= 1.0, (ta, a, tb, b)
+
+
+@pytest.mark.parametrize("name", sorted(ALL))
+def test_no_label_is_cut_or_says_undefined(name):
+    for build in (ALL[name], _long_labels(340)[name]):
+        _, _, texts = _svg_texts(charts.to_svg(charts.spec(build)))
+        words = [t for t, _ in texts]
+        assert not [t for t in words if "…" in t or "..." in t], words
+        assert not [t for t in words if re.search(r"undefined|NaN|null", t)], words
+
+
+def test_legends_sit_below_the_plot_with_room_for_their_labels():
+    for width in (340, 480):
+        for name, build in _long_labels(width).items():
+            spec = charts.spec(build)
+            for layer in spec["layer"]:
+                for channel in ("color", "shape"):
+                    enc = layer.get("encoding", {}).get(channel, {})
+                    legend = enc.get("legend")
+                    if not legend:
+                        continue
+                    assert legend["orient"] == "bottom", name
+                    size = legend["labelFontSize"]
+                    longest = max(charts.text_width(s, size) for s in enc["scale"]["domain"])
+                    assert legend["labelLimit"] >= longest + 1, (name, width)
+                    title = legend.get("title")
+                    for line in ([title] if isinstance(title, str) else title or []):
+                        assert legend["titleLimit"] >= charts.text_width(
+                            line, legend["titleFontSize"], bold=True), (name, width)
+
+
+def _scene_items(node, marktype: str, colour: str) -> list[dict]:
+    """Every item of a mark of ``marktype`` stroked or filled with ``colour``."""
+    found = []
+    if isinstance(node, dict):
+        for item in node.get("items", []):
+            if node.get("marktype") == marktype and colour in (item.get("stroke"),
+                                                               item.get("fill")):
+                found.append(item)
+            found += _scene_items(item, marktype, colour)
+    return found
+
+
+def _plot_size(scene) -> tuple[float, float]:
+    frame = scene["scenegraph"]["items"][0]
+    return frame["width"], frame["height"]
+
+
+def test_rp_min_line_lies_inside_the_frame():
+    import vl_convert
+
+    # a flat Rp(min) is the lowest value drawn: Standard-mode, every Cb, 1.02 kΩ
+    cb = np.geomspace(5, 800, 41) * PICO
+    spec = charts.spec(charts.pullup_window, cb, 1020.0, 1e-6 / (0.8473 * cb),
+                       chosen_cb=60 * PICO, chosen_rp=2000.0, height=260)
+    scene = vl_convert.vegalite_to_scenegraph(spec)
+    _, height = _plot_size(scene)
+    assert height == 260
+    low = _scene_items(scene["scenegraph"], "line", charts.BOUND_LOW)
+    high = _scene_items(scene["scenegraph"], "line", charts.BOUND_HIGH)
+    assert len(low) == len(high) == cb.size
+    # common practice, no source: a line 6 px or more from the frame is seen as a line
+    assert all(6.0 <= p["y"] <= height - 6.0 for p in low + high)
+    assert all(6.0 <= p["x"] for p in low + high)
+
+
+def test_limit_lines_lie_inside_the_frame():
+    import vl_convert
+
+    # VDD is the highest value of a trace that settles without overshoot
+    t = np.linspace(0.0, 20.0, 201) * NANO
+    wave = charts.spec(charts.waveforms, t, {"rise": 3.0 * (1 - np.exp(-t / NANO))},
+                       v_il=0.8, v_ih=2.0, vdd=3.0)
+    scene = vl_convert.vegalite_to_scenegraph(wave)
+    _, height = _plot_size(scene)
+    (vdd,) = _scene_items(scene["scenegraph"], "rule", charts.INK)
+    assert 6.0 <= vdd["y"] <= height - 6.0
+    # every sample passes: the limit is the histogram's last bin edge
+    hist = charts.spec(charts.histogram, np.linspace(200.0, 300.0, 500) * NANO,
+                       limit=300 * NANO, unit="s", label="Rise time")
+    scene = vl_convert.vegalite_to_scenegraph(hist)
+    width, _ = _plot_size(scene)
+    (rule,) = _scene_items(scene["scenegraph"], "rule", charts.LIMIT)
+    assert 6.0 <= rule["x"] <= width - 6.0
+    # the time available is the longest bar's end
+    budget = charts.spec(charts.timing_budget, [("read", "setup", 20 * NANO)],
+                         available=20 * NANO)
+    scene = vl_convert.vegalite_to_scenegraph(budget)
+    width, _ = _plot_size(scene)
+    (tick,) = _scene_items(scene["scenegraph"], "rect", charts.LIMIT)
+    assert 6.0 <= tick["x"] + tick["width"] / 2 <= width - 6.0
+
+
 # --------------------------------------------------------------------------- imports
 def test_chart_libraries_stay_out_of_the_command_line_import_path():
     code = ("import sys; import pinlib.cli, pinlib.check, pinlib.charts; "
@@ -460,6 +799,18 @@ def test_fast_spec_reuses_a_layout_only_where_it_is_the_same():
         dict(points=points, operating=(240 * PICO, 27 * NANO, "far end")),
         dict(points=points, operating=(22 * PICO, 2.5 * NANO)),
     ]
+    budget_cases = [
+        dict(available=20 * NANO, margins={"CIPO setup": 1 * NANO}),
+        dict(available=21 * NANO, margins={"CIPO setup": 2 * NANO}),
+        dict(available=21 * NANO, margins={"CIPO setup": -2 * NANO}),
+        dict(available=21 * NANO),
+        dict(),
+        dict(available=20 * NANO, margins={"CIPO setup": 1 * NANO}, title="other"),
+    ]
+    for _ in range(2):
+        for kw in budget_cases:
+            assert (charts.spec(charts.timing_budget, _BUDGET_ROWS, **kw)
+                    == charts.timing_budget(_BUDGET_ROWS, **kw).to_dict(validate=False))
     for _ in range(2):
         for kw in edge_cases:
             args = (loads, times)

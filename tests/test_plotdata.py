@@ -1,0 +1,137 @@
+"""Tests of pinlib.plotdata: what the edge chart's data says about itself, and that every
+series it names has its fixed chart colour.
+
+The engine figures behind these arrays are tested against the result in
+tests/test_review.py; here the checks are on the names and labels the charts show.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from pinlib import charts, plotdata
+from pinlib.design import load_design
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"
+
+
+@pytest.fixture(scope="module")
+def demo():
+    return load_design(DEMO)
+
+
+def _push_pull_lines(design):
+    for bus in design.buses:
+        if bus.protocol in ("spi", "gpio"):
+            lines = plotdata.line_analyses(bus, design)
+            for sig, la in lines.items():
+                for ref in la.cases:
+                    yield bus, sig, ref, lines
+
+
+def test_edge_data_says_which_figure_to_read(demo):
+    seen = 0
+    for bus, sig, ref, lines in _push_pull_lines(demo):
+        e = plotdata.edge_vs_load_data(bus, demo, sig, driver=ref, analysis=lines)
+        model = "transmission-line model" if e.model == "distributed" else "lumped model"
+        # the point is named for what it is: the far end of this line, and how it was solved
+        assert e.operating_label == f"far end of this line ({model})"
+        # the curves are named for what they are, and the subtitle says which to read
+        assert "lumped load" in e.curves_title
+        assert "lumped load" in e.subtitle and model in e.subtitle
+        assert "the figure the checks use" in e.subtitle
+        seen += 1
+    assert seen >= 3        # the demo's SPI bus: SCLK, COPI, CS and a CIPO per peripheral
+
+
+def test_edge_curves_have_fixed_distinct_colours(demo):
+    for bus, sig, ref, lines in _push_pull_lines(demo):
+        e = plotdata.edge_vs_load_data(bus, demo, sig, driver=ref, analysis=lines)
+        names = list(e.curves)
+        assert all(charts.series_key(n) in charts.SERIES_COLOURS for n in names), names
+        assert len(set(charts.series_colours(names))) == len(names)
+        # the series resistor's curves are drawn at 10-90 %, the checks' levels
+        assert all("10-90" in n for n in names if ", Rs " in n)
+        other_levels = {n.split(",")[0].split()[1] for n in e.points[2]} - {"10-90"}
+        assert len(names) == (4 if e.rs > 0 else 2) + 2 * len(other_levels)
+        assert all(np.all(np.isfinite(c)) for c in e.curves.values())
+
+
+def test_waveform_and_budget_series_have_fixed_colours(demo):
+    bus = demo.bus("flash")
+    tb = plotdata.timing_budget_data(bus, demo)
+    comps = {c for _, c, _ in tb.rows}
+    assert all(c in charts.SERIES_COLOURS for c in comps)
+    for bus, sig, ref, lines in _push_pull_lines(demo):
+        w = plotdata.waveform_data(bus, demo, sig, driver=ref, analysis=lines, points=50)
+        names = list(w.traces)
+        assert all(charts.series_key(n) in charts.SERIES_COLOURS for n in names), names
+        assert len(set(charts.series_colours(names))) == len(names)
+
+
+def _gpio_with_edges(tmp_path):
+    """A GPIO line from a driver whose datasheet gives 10-90 % and 20-80 % edges, with a
+    22 Ω series resistor (invented test parts)."""
+    from pinlib.physics.driver import edge_time
+
+    data = ROOT / "tests" / "data" / "pushpull"
+    parts = tmp_path / "parts"
+    parts.mkdir()
+    # derived from pinlib.physics.driver.edge_time: 20 Ω behind a 1 ns ramp, so that the
+    # fit meets its own points (invented values)
+    rows = [(15e-12, "20-80"), (50e-12, "10-90")]
+    edges = ", ".join(
+        f'{{ load = "{c * 1e12:g} pF", rise = "{edge_time(20.0, 1e-9, c, lv) * 1e9:.4f} '
+        f'ns", fall = "{edge_time(20.0, 1e-9, c, lv) * 1e9:.4f} ns", levels = "{lv}", '
+        f'vdd = "3.3 V" }}' for c, lv in rows)
+    (parts / "pp-ctrl-edges.toml").write_text(f'''format = "pinlib.part/1"
+id = "pp-ctrl-edges"
+extends = "pp-ctrl"
+title = "Test controller with stated edges (invented)"
+provenance = {{ basis = "estimate", source = "test data, invented" }}
+
+[pins.reset]
+edges = [{edges}]
+''', encoding="utf-8")
+    design = tmp_path / "edges.toml"
+    design.write_text(f'''format = "pinlib.design/1"
+title = "GPIO with 20-80 edges (invented)"
+library = ["{data.as_posix()}", "{parts.as_posix()}"]
+
+[[bus]]
+id = "reset"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  {{ ref = "U1", part = "pp-ctrl-edges", role = "controller", pin = "reset" }},
+  {{ ref = "U2", part = "pp-periph", pin = "reset" }},
+]
+lines.reset.length = "6 cm"
+lines.reset.capacitance = "1 pF/cm"
+lines.reset.delay = "50 ps/cm"
+lines.reset.series_resistor = "22 Ω"
+''', encoding="utf-8")
+    return load_design(design)
+
+
+def test_edge_curves_at_every_datasheet_level_keep_their_colours(tmp_path):
+    design = _gpio_with_edges(tmp_path)
+    e = plotdata.edge_vs_load_data(design.bus("reset"), design, "reset")
+    # the datasheet's levels without the resistor, the resistor's curves at 10-90 %
+    assert list(e.curves) == ["rise 10-90", "fall 10-90", "rise 20-80", "fall 20-80",
+                              "rise 10-90, Rs 22 Ω", "fall 10-90, Rs 22 Ω"]
+    assert sorted(set(e.points[2])) == ["fall 10-90", "fall 20-80", "rise 10-90",
+                                        "rise 20-80"]
+    colours = charts.series_colours(list(e.curves))
+    assert len(set(colours)) == 6
+    assert colours == [charts.SERIES_COLOURS[charts.series_key(n)] for n in e.curves]
+    # each datasheet point takes the colour of the curve at its levels
+    chart = charts.edge_vs_load(e.loads, np.vstack(list(e.curves.values())),
+                                series=list(e.curves), points=e.points,
+                                operating=(*e.operating, e.operating_label))
+    scale = chart.to_dict()["layer"][0]["encoding"]["color"]["scale"]
+    assert scale["domain"] == list(e.curves)
