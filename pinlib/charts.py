@@ -399,6 +399,7 @@ def _scale_pair(domain: list[str], colours: list[str]):
 _LEGEND_SIZE = 11  # legend label font size [px]
 _LEGEND_SYMBOL = 20  # a legend entry's symbol and the gap after it [px]
 _LEGEND_GAP = 14  # between two legend columns [px]
+_LEGEND_OFFSET = 26  # from the plot to the legend below the x axis and its title [px]
 _AXIS_ROOM = 66  # a y axis of numbers with its title, left of the plot [px]
 _ROW = 44  # a timing budget's row: the path's name and margin above its bar [px]
 
@@ -428,7 +429,8 @@ def _legend(title: str | None, labels: Sequence[str] = (), room: float = _WIDTH,
                  direction="horizontal", titleLimit=int(room), titleOrient="top",
                  columns=_columns(list(labels), room), labelLimit=int(room),
                  labelFontSize=_LEGEND_SIZE, titleFontSize=_LEGEND_SIZE,
-                 columnPadding=_LEGEND_GAP, rowPadding=4, symbolOpacity=0.9)
+                 columnPadding=_LEGEND_GAP, rowPadding=4, symbolOpacity=0.9,
+                 offset=_LEGEND_OFFSET)
     props.update(extra)
     return alt.Legend(**props)
 
