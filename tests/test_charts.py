@@ -130,7 +130,7 @@ def test_palette_roles_are_okabe_ito_and_series_are_never_status_colours():
 
 
 # from memory: G. M. Machado, M. M. Oliveira, L. A. F. Fernandes, "A physiologically-based
-# model for simulation of color vision deficiency", IEEE TVCG 15(6), 2009, table 1,
+# model for simulation of color vision deficiency", IEEE TVCG 15(6), 2009,
 # severity 1.0 (linear RGB)
 CVD = {
     "protanopia": [[0.152286, 1.052583, -0.204868], [0.114503, 0.786281, 0.099216],
@@ -144,7 +144,7 @@ CVD = {
 
 def _lab(hex_colour: str, matrix=None) -> np.ndarray:
     """CIELAB (D65) of an sRGB colour, seen through a colour-vision matrix."""
-    # published: IEC 61966-2-1 (sRGB) transfer curve and matrix; CIE 15 (CIELAB)
+    # from memory: IEC 61966-2-1 (sRGB) transfer curve and matrix; CIE 15 (CIELAB, D65)
     c = np.array(_rgb(hex_colour)) / 255.0
     lin = np.where(c <= 0.04045, c / 12.92, ((c + 0.055) / 1.055) ** 2.4)
     if matrix is not None:
