@@ -199,14 +199,24 @@ def test_bus_builder_filters(library):
     b.set(category="any", function="gpio")
     assert all("gpio" in library.get(v).functions() for _, v in b.pick.options)
     b.set(function="any", supply=1.8, fits_supply=True)
-    for _, v in list(b.pick.options) + list(b.controller.options):
+    offered = [v for k, v in list(b.pick.options) + list(b.controller.options)
+               if not k.endswith("(does not fit)")]
+    assert offered
+    for v in offered:
         s = library.get(v).supply
         assert s is None or s.min.at() <= 1.8 <= s.max.at()
-    # no controller runs at 1 V: the design cannot be built, and the widget says why
+    # no controller runs at 1 V: the controller stays, the note under it says why, and
+    # the engine's supply-range check fails
     b.set(supply=1.0)
-    assert b.controller.options == ()
-    assert isinstance(b.error, DesignError) and "controller" in b.error.problem
-    assert b.result is None and b.window.svg is None and "controller" in b.status_html.value
+    assert b.controller.value == "mcu-3v3" and b.error is None
+    assert "mcu-3v3" in b.controller_note.value and "does not hold" in b.controller_note.value
+    assert "(does not fit)" in dict((v, k) for k, v in b.controller.options)["mcu-3v3"]
+    assert any(c.id == "supply-range" and c.status == "fail"
+               for _, _, c in b.bus_result.all_checks())
+    # back to 3.3 V: the same controller, the note gone
+    b.set(supply=3.3)
+    assert b.controller.value == "mcu-3v3" and b.controller_note.value == ""
+    assert all("(does not fit)" not in k for k, _ in b.controller.options)
 
 
 def test_bus_builder_places_and_removes_parts(library):
@@ -264,13 +274,16 @@ def test_saved_design_names_its_team_folder_relative_to_itself(tmp_path):
     assert load_design(path).bus("i2c").devices[1].part_id == "eeprom-team"
 
 
-def test_save_refuses_an_invalid_design_and_writes_nothing(library, tmp_path):
+def test_save_refuses_an_invalid_design_and_writes_nothing(library, tmp_path, monkeypatch):
     b = BusBuilder(library, peripherals=["eeprom-i2c"])
-    b.set(supply=1.0)  # no controller fits
     target = tmp_path / "x.toml"
-    with pytest.raises(DesignError, match="controller"):
+    target.write_text("old", encoding="utf-8")
+    # a design whose only device names a part the library does not hold
+    bad = b.design_text().replace('part = "eeprom-i2c"', 'part = "no-such-part"')
+    monkeypatch.setattr(b, "design_text", lambda relative_to=None: bad)
+    with pytest.raises(DesignError, match="part"):
         b.save(target)
-    assert not target.exists()
+    assert target.read_text(encoding="utf-8") == "old"
     b._save_clicked()  # the button with no name: refused beside the box
     assert "file name" in b.save_error.value
 
@@ -287,7 +300,7 @@ def line(library):
 def test_line_svg_is_the_uncached_render(line):
     # derived from vl-convert's vegalite_to_svg of each whole spec: the widget's redraws,
     # which reuse the compiled layout, must give the same SVG as a render from scratch
-    from pinlib.widgets.common import _inline_svg
+    from pinlib.widgets.markup import inline_svg
 
     for length in (0.28, 0.30, 0.9, 0.28):
         line.set(series="auto", length=length)
@@ -295,7 +308,7 @@ def test_line_svg_is_the_uncached_render(line):
         for panel in (line.edges, line.waves):
             direct = charts.to_svg(panel.spec, cache=False)
             assert charts.to_svg(panel.spec) == direct
-            assert panel.svg == _inline_svg(direct, panel.key)
+            assert panel.svg == inline_svg(direct, panel.key)
 
 
 def test_line_figures_are_the_engines_for_its_design(line, library):
@@ -402,7 +415,7 @@ def test_spi_max_clock_and_what_limits_it(budget):
     f_max = budget.figures["max_clock"].value
     assert budget.limits[0].clock == pytest.approx(f_max, rel=1e-12)
     assert [x.clock for x in budget.limits] == sorted(x.clock for x in budget.limits)
-    assert budget.limits[0].what in budget.max_html.value
+    assert budget.limits[0].label in budget.max_html.value
     budget.set(clock=f_max)
     timing = [c for _, _, c in budget.bus_result.all_checks() if c.id != "f-max"]
     assert all(c.status != "fail" for c in timing)

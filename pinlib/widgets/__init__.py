@@ -41,8 +41,9 @@ and :mod:`pinlib.check` never import it.
 """
 
 from pinlib.widgets.busbuilder import BenchReading, BusBuilder
-from pinlib.widgets.common import ChartView, StaticView, checks_table, figures_table, find_file
+from pinlib.widgets.common import ChartView, StaticView, find_file
 from pinlib.widgets.lineexplorer import LineExplorer
+from pinlib.widgets.markup import checks_table, figures_table
 from pinlib.widgets.recorder import PartRecorder
 from pinlib.widgets.spibudget import ClockLimit, SpiBudget
 from pinlib.widgets.swaps import SwapExplorer

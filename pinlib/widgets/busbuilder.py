@@ -20,24 +20,23 @@ from pinlib.library.loader import Library
 from pinlib.quantity import format_si
 from pinlib.tomlfile import atomic_write, tomllib
 from pinlib.widgets.common import (
-    _LABEL,
-    _WIDE,
     ChartView,
+    QuantityField,
     StaticView,
-    _caution_html,
     _closest_option,
-    _e,
     _e24_options,
-    _error_html,
-    _inline_error,
-    _note,
-    _notes_html,
     _num,
     _Panel,
-    _set_options,
-    _status_line,
-    checks_table,
-    figures_table,
+    _values,
+    block_layout,
+    button_layout,
+    field_layout,
+    heading,
+    note_widget,
+    set_options,
+    style,
+    toggle_layout,
+    with_button,
 )
 from pinlib.widgets.designdoc import (
     _design_doc,
@@ -47,6 +46,19 @@ from pinlib.widgets.designdoc import (
     _load,
     _team_folders,
     _Trace,
+)
+from pinlib.widgets.markup import (
+    BLOCK,
+    block,
+    caution_html,
+    checks_table,
+    e,
+    error_html,
+    figures_table,
+    inline_error,
+    note,
+    notes_html,
+    status_line,
 )
 
 # =========================================================================== bus builder
@@ -158,93 +170,98 @@ class BusBuilder(_Panel):
         cats = sorted({p.category for p in parts.values() if p.category != "controller"})
         fns = sorted({f for p in parts.values() for f in p.functions()} -
                      {"i2c-sda", "i2c-scl"})
+        q = self._quantity
 
-        self.title = W.Text(value=title, description="Title", style=_LABEL, layout=_WIDE)
+        self.title = W.Text(value=title, description="Title", style=style(),
+                            layout=field_layout())
         self.protocol = W.ToggleButtons(options=["i2c", "smbus"], value=protocol,
-                                        description="Protocol", style=_LABEL)
+                                        description="Protocol",
+                                        style=style(button_width="72px"),
+                                        layout=toggle_layout())
         self.mode = W.Dropdown(options=MODES[protocol], value=MODES[protocol][
-            1 if protocol == "i2c" else 0], description="Mode", style=_LABEL, layout=_WIDE)
-        self.supply = W.BoundedFloatText(value=supply, min=0.8, max=5.5, step=0.05,
-                                         description="Supply (V)", style=_LABEL, layout=_WIDE)
-        self.supply_tolerance = W.BoundedFloatText(value=5.0, min=0.0, max=20.0, step=0.5,
-                                                   description="Supply ± (%)", style=_LABEL,
-                                                   layout=_WIDE)
+            1 if protocol == "i2c" else 0], description="Mode", style=style(),
+            layout=field_layout())
+        self.mode_note = note_widget()
+        self.supply = q(QuantityField("supply", "Supply", "V", supply, lo=0.8, hi=5.5,
+                                      placeholder="3.3 V"),
+                        lambda _f: self._filters_changed())
+        self.supply_tolerance = q(QuantityField("supply_tolerance", "Supply ±", "%", 0.05,
+                                                lo=0.0, hi=0.2, placeholder="5 %"))
         self.category = W.Dropdown(options=["any"] + cats, value="any",
-                                   description="Category", style=_LABEL, layout=_WIDE)
+                                   description="Category", style=style(),
+                                   layout=field_layout())
         self.fits_supply = W.Checkbox(value=True, description="parts whose supply range "
-                                      "holds the rail", indent=False)
+                                      "holds the rail", indent=False, layout=field_layout())
         self.function = W.Dropdown(options=["any"] + fns, value="any",
-                                   description="Also offers", style=_LABEL, layout=_WIDE)
-        self.controller = W.Dropdown(options=[], description="Controller", style=_LABEL,
-                                     layout=_WIDE)
-        self.pick = W.Dropdown(options=[], description="Peripheral", style=_LABEL,
-                               layout=_WIDE)
-        self.add_button = W.Button(description="Add", layout=W.Layout(width="70px"))
-        self.placed = W.Select(options=[], rows=6, description="Placed", style=_LABEL,
-                               layout=_WIDE)
-        self.remove_button = W.Button(description="Remove", layout=W.Layout(width="70px"))
-        self.trace = _Trace(self, length_cm=length * 100.0, max_cm=200.0)
-        self.extra_capacitance = W.BoundedFloatText(value=0.0, min=0.0, max=1000.0, step=1.0,
-                                                    description="Extra C (pF)", style=_LABEL,
-                                                    layout=_WIDE)
+                                   description="Also offers", style=style(),
+                                   layout=field_layout())
+        self.controller = W.Dropdown(options=[], description="Controller", style=style(),
+                                     layout=field_layout())
+        self.controller_note = note_widget()
+        self.pick = W.Dropdown(options=[], description="Peripheral", style=style(),
+                               layout=field_layout())
+        self.pick_note = note_widget()
+        self.add_button = W.Button(description="Add", layout=button_layout())
+        self.placed = W.Select(options=[], rows=6, description="Placed", style=style(),
+                               layout=field_layout())
+        self.remove_button = W.Button(description="Remove", layout=button_layout())
+        self.trace = _Trace(self, length=length, max_length=2.0)
+        self.extra_capacitance = q(QuantityField("extra_capacitance", "Extra C", "F", 0.0,
+                                                 lo=0.0, hi=1e-9, shown=("pF", 1e-12),
+                                                 placeholder="12 pF"))
         self.pullup_mode = W.ToggleButtons(options=["auto", "fixed"], value="auto",
-                                           description="Pull-up", style=_LABEL)
+                                           description="Choose Rp",
+                                           style=style(button_width="72px"),
+                                        layout=toggle_layout())
         self.pullup = W.SelectionSlider(options=_e24_options(100.0, 100e3), value=4700.0,
                                         description="Rp (E24)", continuous_update=False,
-                                        style=_LABEL, layout=_WIDE)
-        self.pullup_tolerance = W.BoundedFloatText(value=1.0, min=0.0, max=20.0, step=0.5,
-                                                   description="Rp ± (%)", style=_LABEL,
-                                                   layout=_WIDE)
-        self.rise_measured = W.BoundedFloatText(value=0.0, min=0.0, max=1e6, step=1.0,
-                                                description="Rise (ns)", style=_LABEL,
-                                                layout=_WIDE)
-        self.c_probe = W.BoundedFloatText(value=10.0, min=0.0, max=1000.0, step=0.5,
-                                          description="Probe (pF)", style=_LABEL,
-                                          layout=_WIDE)
+                                        style=style(), layout=field_layout())
+        self.pullup_tolerance = q(QuantityField("pullup_tolerance", "Rp ±", "%", 0.01,
+                                                lo=0.0, hi=0.2, placeholder="1 %"))
+        self.rise_measured = q(QuantityField("rise_measured", "Rise measured", "s", None,
+                                             lo=0.0, hi=1e-3, shown=("ns", 1e-9),
+                                             optional=True, placeholder="e.g. 250 ns"),
+                               lambda _f: self._bench(), held=False)
+        self.c_probe = q(QuantityField("c_probe", "Probe C", "F", 10e-12, lo=0.0, hi=1e-9,
+                                       shown=("pF", 1e-12), placeholder="10 pF"),
+                         lambda _f: self._bench(), held=False)
         self.levels = W.Dropdown(options=[("30–70 %", (0.3, 0.7)), ("10–90 %", (0.1, 0.9)),
                                           ("20–80 %", (0.2, 0.8))], value=(0.3, 0.7),
-                                 description="Measured", style=_LABEL, layout=_WIDE)
-        self.bench_html = W.HTML()
+                                 description="Measured", style=style(), layout=field_layout())
+        self.bench_html = W.HTML(layout=W.Layout(width="auto"))
         self.save_path = W.Text(value="", placeholder="board.toml", description="Save as",
-                                style=_LABEL, layout=_WIDE)
-        self.save_button = W.Button(description="Save", layout=W.Layout(width="70px"))
-        self.save_error = W.HTML()
+                                style=style(), layout=field_layout())
+        self.save_button = W.Button(description="Save", layout=button_layout())
+        self.save_error = W.HTML(layout=W.Layout(width="auto"))
         self.window = ChartView()
-        self.figures_html = W.HTML()
-        self.checks_html = W.HTML()
-        self.notes_html = W.HTML()
+        self.figures_html = W.HTML(layout=block_layout())
+        self.checks_html = W.HTML(layout=block_layout())
+        self.notes_html = W.HTML(layout=block_layout())
 
         self.protocol.observe(self._protocol_changed, names="value")
-        for c in (self.category, self.fits_supply, self.function, self.supply):
+        for c in (self.category, self.fits_supply, self.function, self.controller):
             c.observe(self._filters_changed, names="value")
-        self._watch(self.mode, self.supply_tolerance, self.controller, self.extra_capacitance,
-                    self.pullup_mode, self.pullup, self.pullup_tolerance, self.title)
-        for c in (self.rise_measured, self.c_probe, self.levels):
-            c.observe(lambda change: self._bench(), names="value")
-        self.add_button.on_click(lambda _b: self.add_peripheral(self.pick.value))
+        self._watch(self.mode, self.pullup_mode, self.pullup, self.title)
+        self.levels.observe(lambda change: self._bench(), names="value")
+        self.add_button.on_click(lambda _b: self.pick.value and
+                                 self.add_peripheral(self.pick.value))
         self.remove_button.on_click(lambda _b: self.placed.value and
                                     self.remove_peripheral(self.placed.value))
         self.save_button.on_click(lambda _b: self._save_clicked())
 
         self._choice("protocol", self.protocol)
         self._setters["mode"] = self._set_mode
-        self._number("supply", self.supply)
-        self._number("supply_tolerance", self.supply_tolerance, 100.0)
         self._choice("controller", self.controller)
         self._choice("category", self.category)
         self._setters["fits_supply"] = lambda v: setattr(self.fits_supply, "value", bool(v))
         self._choice("function", self.function)
-        self._number("extra_capacitance", self.extra_capacitance, 1e12)
         self._setters["pullup"] = self._set_pullup
-        self._number("pullup_tolerance", self.pullup_tolerance, 100.0)
-        self._number("rise_measured", self.rise_measured, 1e9)
-        self._number("c_probe", self.c_probe, 1e12)
         self._choice("levels", self.levels)
         self._setters["title"] = lambda v: setattr(self.title, "value", str(v))
 
         with self._hold():
             self._filters_changed()
-            if controller in [v for _, v in self.controller.options]:
+            if controller in _values(self.controller.options):
                 self.controller.value = controller
             for pid in peripherals:
                 self.add_peripheral(pid)
@@ -259,33 +276,47 @@ class BusBuilder(_Panel):
                 if not p.sides and p.category != "cable" and p.pin_for("i2c-sda")
                 and p.pin_for("i2c-scl")}
 
-    def _fits(self, part, *, category: bool) -> bool:
+    def _unfit(self, part, *, category: bool) -> str:
+        """Why a part is not offered under the filters ("" when it is)."""
+        why = []
         if category and self.category.value != "any" and part.category != self.category.value:
-            return False
+            why.append(f"its category is {part.category}, not {self.category.value}")
         if self.fits_supply.value and part.supply is not None:
             lo, hi = float(part.supply.min.at()), float(part.supply.max.at())
             if not lo <= self.supply.value <= hi:
-                return False
-        return self.function.value == "any" or self.function.value in part.functions()
+                why.append(f"its supply range {format_si(lo, 'V')}–{format_si(hi, 'V')} "
+                           f"does not hold the {format_si(self.supply.value, 'V')} rail")
+        if self.function.value != "any" and self.function.value not in part.functions():
+            why.append(f"it offers no {self.function.value} pin")
+        return "; ".join(why)
+
+    def _fits(self, part, *, category: bool) -> bool:
+        return not self._unfit(part, category=category)
 
     def _label(self, pid: str, part) -> str:
         return f"{pid} — {part.title}"
 
     def _filters_changed(self, change=None) -> None:
+        """Offer the parts the filters let through.  The controller the filters no longer
+        let through stays the controller, and the note under it says why; the peripheral
+        to add follows the filters, and its note says when it changed."""
         parts = self._bus_parts()
         with self._hold():
             ctl = [(self._label(k, p), k) for k, p in parts.items()
                    if p.category == "controller" and self._fits(p, category=False)]
-            _set_options(self.controller, ctl, self.controller.value)
+            set_options(self.controller, ctl, self.controller.value, what="Controller",
+                        said=self.controller_note,
+                        unfit=lambda k: self._unfit(parts[k], category=False))
             per = [(self._label(k, p), k) for k, p in parts.items()
                    if self._fits(p, category=True)]
-            _set_options(self.pick, per, self.pick.value)
+            set_options(self.pick, per, self.pick.value, what="Peripheral",
+                        said=self.pick_note)
         self._changed()
 
     def _protocol_changed(self, change=None) -> None:
         with self._hold():
-            modes = MODES[self.protocol.value]
-            _set_options(self.mode, list(modes), self.mode.value)
+            set_options(self.mode, list(MODES[self.protocol.value]), self.mode.value,
+                        what="Mode", said=self.mode_note)
         self._changed()
 
     def _set_mode(self, value) -> None:
@@ -355,14 +386,14 @@ class BusBuilder(_Panel):
         bus.add("protocol", self.protocol.value)
         bus.add("mode", self.mode.value)
         bus.add("supply", f"{_num(self.supply.value)} V")
-        bus.add("supply_tolerance", f"{_num(self.supply_tolerance.value)} %")
+        bus.add("supply_tolerance", f"{_num(self.supply_tolerance.value * 100.0)} %")
         bus.add("pullup", "auto" if self.pullup_mode.value == "auto" else
                 f"{_num(self.pullup.value)} Ω")
-        bus.add("pullup_tolerance", f"{_num(self.pullup_tolerance.value)} %")
+        bus.add("pullup_tolerance", f"{_num(self.pullup_tolerance.value * 100.0)} %")
         bus.add("pullup_series", "E24")
         bus.add("trace", _inline(self.trace.entry("trace")))
         if self.extra_capacitance.value:
-            bus.add("extra_capacitance", f"{_num(self.extra_capacitance.value)} pF")
+            bus.add("extra_capacitance", f"{_num(self.extra_capacitance.value * 1e12)} pF")
         devices = []
         if self.controller.value:
             devices.append({"ref": "U1", "part": self.controller.value, "role": "controller"})
@@ -379,6 +410,7 @@ class BusBuilder(_Panel):
         if self._quiet:
             return
         self.updates += 1
+        self._show_held()
         try:
             text = self.design_text()
             design = _load(text, self.library)
@@ -412,36 +444,38 @@ class BusBuilder(_Panel):
                       + (f" set by {w.weakest}" if w.weakest else "")),
             chosen_label=f"design: {format_si(w.chosen_rp, 'Ω')} at "
                          f"{format_si(w.chosen_cb, 'F')}"))
-        self.status_html.value = _status_line(br, f"Bus {br.id} ({self.mode.value})")
+        self.status_html.value = status_line(br, f"Bus {br.id} ({self.mode.value})")
         self.figures_html.value = figures_table(self.figures)
         self.checks_html.value = checks_table(br)
-        self.notes_html.value = _notes_html([br])
+        self.notes_html.value = notes_html([br])
         self._bench()
 
     def _bench(self) -> None:
         from pinlib.buses.opendrain import capacitance_from_rise
 
+        if self.rise_measured.error or self.c_probe.error:
+            return  # the reading shown stays that of the last valid inputs
         self.bench, self.bench_error = None, None
-        t = self.rise_measured.value * 1e-9
+        t = self.rise_measured.value
         if self.window_data is None:
-            self.bench_html.value = _note("the bench panel needs a design that evaluates")
+            self.bench_html.value = note("the bench panel needs a design that evaluates")
             return
-        if t <= 0:
-            self.bench_html.value = _note("enter the rise time read on the oscilloscope")
+        if t is None or t <= 0:
+            self.bench_html.value = note("enter the rise time read on the oscilloscope")
             return
         w = self.window_data
         lo, hi = self.levels.value
-        c_probe = self.c_probe.value * 1e-12
+        c_probe = self.c_probe.value
         try:
             cb, rise = capacitance_from_rise(t, w.chosen_rp, c_probe, lo=lo, hi=hi)
         except PinlibError as err:
             self.bench_error = err
-            self.bench_html.value = _inline_error(err)
+            self.bench_html.value = inline_error(err)
             return
         self.bench = BenchReading(t, c_probe, (lo, hi), w.chosen_rp, float(cb), float(rise),
                                   w.chosen_cb)
         self.bench_html.value = (
-            f'<div style="font-size:12px">With Rp = {format_si(w.chosen_rp, "Ω")} (every '
+            f'<div style="{BLOCK};font-size:12px">With Rp = {format_si(w.chosen_rp, "Ω")} (every '
             f"pull-up on {w.signal.upper()} in parallel): bus capacitance without the probe "
             f"<b>{format_si(cb, 'F')}</b> (the model's Cb: {format_si(w.chosen_cb, 'F')}); "
             f"rise time without the probe <b>{format_si(rise, 's')}</b> "
@@ -468,33 +502,33 @@ class BusBuilder(_Panel):
                                  expected="a path such as board.toml")
             path = self.save(self.save_path.value.strip())
         except PinlibError as err:
-            self.save_error.value = _inline_error(err)
+            self.save_error.value = inline_error(err)
             return
-        self.save_error.value = f'<span style="font-size:12px">saved {_e(path)}</span>'
+        self.save_error.value = block(f"saved {e(path)}")
 
     def static_view(self) -> StaticView:
         """The charts and tables as plain HTML, for exported pages."""
         if self.bus_result is None:
-            return StaticView(_caution_html() + _error_html(self.error))
-        return StaticView(_caution_html() + self.status_html.value + self.window.html()
+            return StaticView(caution_html() + error_html(self.error))
+        return StaticView(caution_html() + self.status_html.value + self.window.html()
                           + self.bench_html.value + self.figures_html.value
                           + self.checks_html.value)
 
     def _layout(self) -> W.Widget:
-        controls = W.VBox([
-            self.title, self.protocol, self.mode, self.supply, self.supply_tolerance,
-            W.HTML("<b>Parts</b>"), self.category, self.fits_supply, self.function,
-            self.controller, W.HBox([self.pick, self.add_button]),
-            W.HBox([self.placed, self.remove_button]),
-            W.HTML("<b>Trace</b>"), self.trace.box, self.extra_capacitance,
-            W.HTML("<b>Pull-up</b>"), self.pullup_mode, self.pullup, self.pullup_tolerance,
-            W.HTML("<b>Bench: a measured rise</b>"), self.rise_measured, self.c_probe,
+        controls = [
+            self.title, self.protocol, self.mode, self.mode_note, self.supply.box,
+            self.supply_tolerance.box,
+            heading("Parts"), self.category, self.fits_supply, self.function,
+            self.controller, self.controller_note, with_button(self.pick, self.add_button),
+            self.pick_note, with_button(self.placed, self.remove_button),
+            heading("Trace"), self.trace.box, self.extra_capacitance.box,
+            heading("Pull-up"), self.pullup_mode, self.pullup, self.pullup_tolerance.box,
+            heading("Bench: a measured rise"), self.rise_measured.box, self.c_probe.box,
             self.levels, self.bench_html,
-            W.HTML("<b>Save</b>"), W.HBox([self.save_path, self.save_button]),
-            self.save_error,
-        ], layout=W.Layout(width="430px"))
-        outputs = W.VBox([self.status_html, self.window.widget, self.figures_html,
-                          self.checks_html, self.notes_html])
+            heading("Save"), with_button(self.save_path, self.save_button), self.save_error,
+        ]
+        outputs = [self.held_html, self.status_html, self.window.widget, self.figures_html,
+                   self.notes_html]
         return W.VBox([self._header("Start a design: an I2C/SMBus bus from library parts"),
-                       W.HBox([controls, outputs])])
-
+                       self._columns(controls, outputs, [self.checks_html])],
+                      layout=W.Layout(width="100%"))

@@ -1,14 +1,32 @@
-"""What the workbenches share: labels and layouts of controls, HTML tables, the chart view,
-the panel base class (batched changes, setters, the error shown)."""
+"""What the workbenches share: the layout of controls, quantity fields, option lists that
+say what they changed, the chart view and the panel base class.
+
+Layout
+------
+Every control gets its own :class:`ipywidgets.Layout` from a factory here (a layout is a
+widget of its own: shared, hiding one control would hide every control using it).  A
+workbench is a header, then a row that wraps: a control column of fixed width
+(:data:`COLUMN_WIDTH`, never shrinking) and an output column that takes the remaining
+width, or goes below the controls when less than its basis is left.  Charts scale down to
+their column; tables are capped to it (:mod:`pinlib.widgets.markup`).  Wide tables go in
+a full-width row under both columns.
+
+Quantities
+----------
+A value with a unit is typed into a :class:`QuantityField` and read by
+:func:`pinlib.quantity.parse` ("4.7 kΩ" is refused where a voltage belongs, a bare number
+is refused for its missing unit, a value outside the field's range is refused and never
+clamped).  The refusal is shown under the field and the panel does not recompute: what it
+shows stays that of the last valid inputs, and a notice above the figures says so.
+"""
 
 from __future__ import annotations
 
 import contextlib
-import html
 import itertools
 import math
 import os
-import re
+from collections.abc import Callable
 from pathlib import Path
 
 import ipywidgets as W
@@ -17,137 +35,227 @@ from pinlib import charts
 from pinlib import messages as M
 from pinlib.errors import InputError, PinlibError
 from pinlib.eseries import values_in_range
-from pinlib.quantity import format_si
-from pinlib.report import format_value
-from pinlib.result import CAUTION, BusResult, Group
+from pinlib.quantity import format_si, parse
+from pinlib.widgets.markup import (
+    caution_html,
+    e,
+    error_html,
+    inline_error,
+    inline_svg,
+    note,
+    notice,
+)
 
 _ids = itertools.count(1)
-_LABEL = {"description_width": "120px"}
-_WIDE = W.Layout(width="340px")
-_STATUS_TEXT = {"pass": "PASS", "warn": "WARN", "fail": "FAIL"}
-_CELL = "border:1px solid #c8c8c8;padding:1px 6px;vertical-align:top;text-align:left"
-_NUM = "border:1px solid #c8c8c8;padding:1px 6px;vertical-align:top;text-align:right;" \
-       "white-space:nowrap"
-_HEAD = _CELL + ";background:#eef0f2"
+
+#: Width of a control's description. [px]
+LABEL_WIDTH = 130
+#: Width of the control column. [px]
+COLUMN_WIDTH = 360
 
 
-# =========================================================================== helpers
+# =========================================================================== layouts
 
 
-def _e(text) -> str:
-    return html.escape(str(text), quote=True)
+def style(**extra) -> dict:
+    """A control's description style (a new one each call)."""
+    return {"description_width": f"{LABEL_WIDTH}px", **extra}
 
 
-def _badge(status: str) -> str:
-    colour = charts.STATUS_COLOURS.get(status, "#999999")
-    return (f'<span style="background:{colour};color:#000;font-weight:700;padding:0 4px;'
-            f'border-radius:3px">{_STATUS_TEXT.get(status, _e(status))}</span>')
+def field_layout(**kw) -> W.Layout:
+    """A control's own layout: the width of the control column unless told otherwise."""
+    return W.Layout(**({"width": "auto", "max_width": f"{COLUMN_WIDTH}px"} | kw))
 
 
-def _note(text: str) -> str:
-    return f'<div style="color:#4a4a4a;font-style:italic;padding:4px 0">{_e(text)}</div>'
+def toggle_layout() -> W.Layout:
+    """Toggle buttons: the description and the buttons on one line."""
+    return W.Layout(display="flex", flex_flow="row nowrap", align_items="center",
+                    width="auto")
 
 
-def _error_html(err: PinlibError) -> str:
-    bits = [f"<b>{_e(err.problem)}</b>"]
-    if err.field:
-        bits.append(f"field <code>{_e(err.field)}</code>")
-    if err.value is not None:
-        bits.append(f"got <code>{_e(err.value)}</code>")
-    if err.expected:
-        bits.append(f"expected {_e(err.expected)}")
-    if err.hint:
-        bits.append(_e(err.hint))
-    return (f'<div style="border-left:6px solid {charts.FAIL};padding:2px 8px;'
-            f'background:#fff4ec">{"; ".join(bits)}</div>')
+def button_layout(width: str = "76px") -> W.Layout:
+    return W.Layout(width=width, min_width=width, flex="0 0 auto")
 
 
-def _inline_error(err: PinlibError | None) -> str:
-    """The short form shown beside a field: what is wrong and what would do."""
-    if err is None:
+def column_layout(width: int = COLUMN_WIDTH) -> W.Layout:
+    """The control column: a fixed width that neither grows nor shrinks."""
+    return W.Layout(width=f"{width}px", min_width=f"{width}px", max_width="100%",
+                    flex="0 0 auto", margin="0 12px 0 0")
+
+
+def outputs_layout(basis: int = 560) -> W.Layout:
+    """The output column: the width left beside the controls, or the whole row below them
+    when less than ``basis`` pixels are left."""
+    return W.Layout(flex=f"1 1 {basis}px", min_width="0", max_width="100%")
+
+
+def row_layout() -> W.Layout:
+    """A row whose items wrap onto the next line when they do not fit side by side."""
+    return W.Layout(display="flex", flex_flow="row wrap", align_items="flex-start",
+                    width="100%")
+
+
+def block_layout() -> W.Layout:
+    """A full-width block (a table under both columns)."""
+    return W.Layout(width="auto", max_width="100%")
+
+
+def with_button(control, button) -> W.HBox:
+    """A control with a button on its right, both on one line of the control column."""
+    control.layout.flex = "1 1 auto"
+    control.layout.min_width = "0"
+    return W.HBox([control, button], layout=W.Layout(width="auto", align_items="center"))
+
+
+def heading(text: str) -> W.HTML:
+    return W.HTML(f'<b style="line-height:1.6">{e(text)}</b>', layout=W.Layout(margin="6px 0 0 0"))
+
+
+def note_widget() -> W.HTML:
+    """An HTML line under a control, empty until there is something to say."""
+    return W.HTML(layout=W.Layout(width="auto", max_width=f"{COLUMN_WIDTH}px"))
+
+
+# =========================================================================== quantities
+
+
+def _shown(value: float | None, unit: str, shown: tuple[str, float] | None) -> str:
+    if value is None:
         return ""
-    text = err.problem
-    if err.expected:
-        text += f"; expected {err.expected}"
-    if err.hint:
-        text += f" ({err.hint})"
-    return f'<span style="color:{charts.FAIL};font-weight:600">{_e(text)}</span>'
+    if shown is not None:
+        text, scale = shown
+        return f"{value / scale:.6g} {text}"
+    if unit == "":
+        return f"{value:.6g}"
+    return format_si(value, unit, digits=6)
 
 
-def _margin(m) -> str:
-    if m is None:
-        return ""
-    m = float(m)
-    return "∞" if not math.isfinite(m) else f"{m * 100:+.0f} %"
+class QuantityField:
+    """A text box for a value with its unit, read by :func:`pinlib.quantity.parse`.
+
+    Parameters
+    ----------
+    name : str
+        The setting's name (:meth:`_Panel.set`).
+    description : str
+        The label in front of the box.
+    unit : str
+        The SI unit expected (a key of :data:`pinlib.quantity.UNITS`); ``""`` for a plain
+        number.
+    value : float or None
+        The first value. [SI]
+    lo, hi : float, optional
+        The range accepted, both ends included. [SI]
+    above : float, optional
+        A lower bound that is not included (a clock above 0). [SI]
+    shown : (str, float), optional
+        The unit text and scale the value is written in (``("cm", 1e-2)``); by default
+        with the SI prefix that suits it.
+    optional : bool
+        An empty box is accepted and reads as None.
+
+    Attributes
+    ----------
+    value : float or None
+        The last valid value. [SI]
+    error : PinlibError or None
+        Why the text in the box is refused (the value then stays the last valid one).
+    box : ipywidgets.VBox
+        The text box and the error under it.
+    """
+
+    def __init__(self, name: str, description: str, unit: str, value: float | None, *,
+                 lo: float | None = None, hi: float | None = None,
+                 above: float | None = None, shown: tuple[str, float] | None = None,
+                 optional: bool = False, placeholder: str = ""):
+        self.name, self.unit, self.shown = name, unit, shown
+        self.lo, self.hi, self.above, self.optional = lo, hi, above, optional
+        self.description = description
+        self.value = None if value is None else float(value)
+        self.error: PinlibError | None = None
+        self.on_change: Callable[[QuantityField], None] | None = None
+        self._writing = False
+        self.text = W.Text(value=_shown(self.value, unit, shown), description=description,
+                           placeholder=placeholder, continuous_update=False, style=style(),
+                           layout=field_layout())
+        self.error_html = W.HTML(layout=W.Layout(width="auto", max_width=f"{COLUMN_WIDTH}px",
+                                                 padding=f"0 0 0 {LABEL_WIDTH + 6}px"))
+        self.box = W.VBox([self.text, self.error_html], layout=W.Layout(width="auto"))
+        self.text.observe(self._typed, names="value")
+
+    def _range_text(self) -> str:
+        def f(v):
+            return _shown(v, self.unit, self.shown)
+        if self.above is not None and self.hi is not None:
+            return f"above {f(self.above)}, up to {f(self.hi)}"
+        if self.above is not None:
+            return f"above {f(self.above)}"
+        if self.lo is not None and self.hi is not None:
+            return f"from {f(self.lo)} to {f(self.hi)}"
+        if self.lo is not None:
+            return f"{f(self.lo)} or more"
+        return f"{f(self.hi)} or less"
+
+    def check(self, value: float, shown_as) -> float:
+        """``value`` when it is in range; otherwise an InputError naming the range."""
+        ok = math.isfinite(value) and (self.lo is None or value >= self.lo) and \
+            (self.hi is None or value <= self.hi) and (self.above is None or value > self.above)
+        if not ok:
+            raise InputError(M.OUTSIDE_CONTROL_RANGE, field=self.name, value=shown_as,
+                             expected=self._range_text())
+        return value
+
+    def read(self, text: str) -> float | None:
+        """The SI value of ``text``; an InputError or UnitError when it is refused."""
+        text = text.strip()
+        if not text:
+            if self.optional:
+                return None
+            raise InputError(M.VALUE_NEEDED, field=self.name,
+                             expected=f"{self._range_text()}, with its unit")
+        if self.unit == "":
+            try:
+                value = float(text)
+            except ValueError:
+                raise InputError(M.NOT_A_NUMBER, field=self.name, value=text,
+                                 expected="a plain number such as 4.2") from None
+        else:
+            value = parse(text, self.unit, field=self.name)
+        return self.check(value, text)
+
+    def _typed(self, change) -> None:
+        if self._writing:
+            return
+        try:
+            self.value = self.read(change["new"])
+            self.error = None
+        except PinlibError as err:
+            self.error = err
+        self.error_html.value = inline_error(self.error)
+        if self.on_change is not None:
+            self.on_change(self)
+
+    def set_value(self, value: float | None) -> None:
+        """Set the value from Python (SI), as if typed; an InputError when it is out of
+        range, and the box as it was."""
+        if value is None:
+            if not self.optional:
+                raise InputError(M.VALUE_NEEDED, field=self.name,
+                                 expected=f"{self._range_text()}, with its unit")
+        else:
+            value = self.check(float(value), value)
+        self.value, self.error = value, None
+        self._writing = True
+        try:
+            self.text.value = _shown(value, self.unit, self.shown)
+        finally:
+            self._writing = False
+        self.error_html.value = ""
+        if self.on_change is not None:
+            self.on_change(self)
 
 
-def figures_table(figures: dict, caption: str = "Figures") -> str:
-    """An HTML table of figures (name, value with its SI prefix)."""
-    rows = "".join(f'<tr><td style="{_CELL}"><code>{_e(name)}</code></td>'
-                   f'<td style="{_NUM}">{_e(format_value(f.value, f.unit))}</td></tr>'
-                   for name, f in figures.items())
-    return (f'<table style="border-collapse:collapse;font-size:12px;margin:4px 0">'
-            f'<caption style="text-align:left;font-weight:700">{_e(caption)}</caption>'
-            f'<tr><th style="{_HEAD}">figure</th><th style="{_HEAD}">value</th></tr>{rows}'
-            "</table>")
-
-
-def checks_table(bus_result: BusResult, caption: str = "Checks") -> str:
-    """An HTML table of every check of a bus: status (as a word and a colour), where,
-    value, limit, margin and the source of the limit."""
-    head = "".join(f'<th style="{_HEAD}">{h}</th>' for h in (
-        "status", "check", "where", "subject", "value", "limit", "margin", "source"))
-    rows = []
-    for seg, sig, c in bus_result.all_checks():
-        where = seg or sig or bus_result.id
-        value = "" if isinstance(c.value, bool) else format_value(c.value, c.unit)
-        limit = "" if isinstance(c.limit, bool) else format_value(c.limit, c.unit)
-        rows.append(
-            f'<tr title="{_e(c.message)}"><td style="{_CELL}">{_badge(c.status)}</td>'
-            f'<td style="{_CELL}"><code>{_e(c.id)}</code></td><td style="{_CELL}">{_e(where)}'
-            f'</td><td style="{_CELL}">{_e(c.subject or "")}</td>'
-            f'<td style="{_NUM}">{_e(value)}</td><td style="{_NUM}">{_e(limit)}</td>'
-            f'<td style="{_NUM}">{_e(_margin(c.margin))}</td>'
-            f'<td style="{_CELL};font-size:11px">{_e(c.source)}</td></tr>')
-    return (f'<table style="border-collapse:collapse;font-size:12px;margin:4px 0">'
-            f'<caption style="text-align:left;font-weight:700">{_e(caption)}</caption>'
-            f"<tr>{head}</tr>{''.join(rows)}</table>")
-
-
-def _notes_html(groups: list[Group]) -> str:
-    notes = [n for g in groups for n in g.notes]
-    if not notes:
-        return ""
-    items = "".join(f"<li>{_e(n)}</li>" for n in dict.fromkeys(notes))
-    return (f'<details style="font-size:12px"><summary>Notes ({len(notes)})</summary>'
-            f"<ul>{items}</ul></details>")
-
-
-def _status_line(result: BusResult, what: str) -> str:
-    counts = {s: 0 for s in _STATUS_TEXT}
-    for _, _, c in result.all_checks():
-        counts[c.status] += 1
-    return (f'<div style="font-size:14px;margin:2px 0">{_e(what)}: {_badge(result.status)} '
-            f"{counts['pass']} pass, {counts['warn']} warn, {counts['fail']} fail</div>")
-
-
-def _caution_html() -> str:
-    return (f'<div style="border-left:6px solid {charts.WARN};background:#fff7e0;'
-            f'padding:2px 8px;font-size:11px">{_e(CAUTION)}</div>')
-
-
-_SVG_ID = re.compile(r'\bid="([^"]+)"')
-
-
-def _inline_svg(svg: str, key: str) -> str:
-    """SVG text ready to sit inline among others: no XML prologue, every id prefixed with
-    ``key`` so that two charts' clip paths cannot collide."""
-    svg = re.sub(r"^\s*<\?xml[^>]*\?>\s*", "", svg)
-    for old in sorted(set(_SVG_ID.findall(svg)), key=len, reverse=True):
-        new = f"{key}-{old}"
-        svg = (svg.replace(f'id="{old}"', f'id="{new}"').replace(f"url(#{old})", f"url(#{new})")
-               .replace(f'href="#{old}"', f'href="#{new}"'))
-    return svg
+# =========================================================================== options
 
 
 def _num(x: float) -> str:
@@ -169,14 +277,58 @@ def _e24_options(lo: float, hi: float) -> list[tuple[str, float]]:
     return [(format_si(float(v), "Ω"), float(v)) for v in values_in_range("E24", lo, hi)]
 
 
-def _set_options(dropdown, options, keep) -> None:
-    """Give a dropdown new options, keeping its value when it is still offered."""
-    values = [o[1] if isinstance(o, tuple) else o for o in options]
-    dropdown.options = options
-    if keep in values:
+def _values(options) -> list:
+    return [o[1] if isinstance(o, tuple) else o for o in options]
+
+
+def _label_of(options, value) -> str:
+    for o in options:
+        if (o[1] if isinstance(o, tuple) else o) == value:
+            return str(o[0] if isinstance(o, tuple) else o)
+    return str(value)
+
+
+def set_options(dropdown, options, keep, *, what: str = "", said: W.HTML | None = None,
+                unfit: Callable[[object], str] | None = None) -> None:
+    """Give a dropdown new options without changing its value unannounced.
+
+    The value stays when it is still offered.  When it is not:
+
+    * with ``unfit`` (a function giving the reason why the value no longer fits), the value
+      is kept, listed first with "(does not fit)", and ``said`` tells why;
+    * otherwise the first option is taken and ``said`` names the old and the new value.
+
+    ``said`` is emptied when the value stays as an ordinary option.
+    """
+    old = list(dropdown.options)
+    values = _values(options)
+    message = ""
+    if keep in values or keep is None or keep == "":
+        dropdown.options = options
+        if keep in values:
+            dropdown.value = keep
+        elif values:
+            dropdown.value = values[0]
+    elif unfit is not None:
+        label = _label_of(old, keep).replace(" (does not fit)", "")
+        dropdown.options = [(f"{label} (does not fit)", keep)] + [
+            o if isinstance(o, tuple) else (str(o), o) for o in options]
         dropdown.value = keep
-    elif values:
-        dropdown.value = values[0]
+        message = (f"{e(what)} <b>{e(keep)}</b> is kept although it no longer fits: "
+                   f"{e(unfit(keep))}. Choose another, or change the filters.")
+    else:
+        dropdown.options = options
+        if values:
+            dropdown.value = values[0]
+            message = (f"{e(what)} <b>{e(_label_of(old, keep))}</b> is not offered here: "
+                       f"now <b>{e(_label_of(options, values[0]))}</b>.")
+        else:
+            message = f"no {e(what.lower() or 'choice')} is offered here."
+    if said is not None:
+        said.value = notice(message) if message else ""
+
+
+# =========================================================================== files, views
 
 
 def find_file(path: str | os.PathLike) -> Path:
@@ -234,9 +386,9 @@ class ChartView:
         How many times the SVG was rendered (an unchanged spec is not).
     """
 
-    def __init__(self, placeholder: str = "no chart yet"):
+    def __init__(self, placeholder: str = "no chart yet", layout: W.Layout | None = None):
         self.key = f"pinlib-chart-{next(_ids)}"
-        self.widget = W.HTML(value=_note(placeholder))
+        self.widget = W.HTML(value=note(placeholder), layout=layout or block_layout())
         self.chart = None
         self.spec: dict | None = None
         self.svg: str | None = None
@@ -268,7 +420,7 @@ class ChartView:
         spec = chart if isinstance(chart, dict) else chart.to_dict(validate=False)
         if spec == self.spec:
             return False
-        svg = _inline_svg(charts.to_svg(spec), self.key)
+        svg = inline_svg(charts.to_svg(spec), self.key)
         self.chart, self.spec, self.svg, self.message = chart, spec, svg, None
         self.widget.value = f'<div class="pinlib-chart">{svg}</div>'
         self.renders += 1
@@ -278,7 +430,7 @@ class ChartView:
         """Replace the chart with a note saying why there is none."""
         self.chart = self.spec = self.svg = None
         self.message = text
-        self.widget.value = _note(text)
+        self.widget.value = note(text)
 
     def data(self) -> list[list[dict]]:
         """The data values of each layer of the chart shown (empty when none)."""
@@ -289,22 +441,23 @@ class ChartView:
 
     def html(self) -> str:
         return f'<figure style="margin:6px 0">{self.svg}</figure>' if self.svg else \
-            _note(self.message or "no chart")
+            note(self.message or "no chart")
 
 
-def _field_row(control, error: W.HTML) -> W.HBox:
-    return W.HBox([control, error], layout=W.Layout(align_items="center"))
 
 
 class _Panel:
-    """What every workbench class shares: batching of changes, the error shown, setters."""
+    """What every workbench class shares: batching of changes, the error shown, setters,
+    quantity fields held back while one is refused."""
 
     def __init__(self):
         self._quiet = 0
         self.error: PinlibError | None = None
         self.updates = 0
         self._setters: dict = {}
-        self.status_html = W.HTML()
+        self.fields: dict[str, QuantityField] = {}
+        self.status_html = W.HTML(layout=block_layout())
+        self.held_html = W.HTML(layout=block_layout())
 
     @contextlib.contextmanager
     def _hold(self):
@@ -315,9 +468,29 @@ class _Panel:
         finally:
             self._quiet -= 1
 
+    def refused_fields(self) -> dict[str, PinlibError]:
+        """The quantity fields whose text is refused, by setting name."""
+        return {n: f.error for n, f in self.fields.items() if f.error is not None}
+
     def _changed(self, change=None) -> None:
-        if not self._quiet:
-            self.update()
+        if self._quiet:
+            return
+        if self._show_held():
+            return
+        self.update()
+
+    def _show_held(self) -> bool:
+        """Say which fields hold the panel back; True while one does."""
+        refused = [f for f in self.fields.values() if f.error is not None]
+        if not refused:
+            self.held_html.value = ""
+            return False
+        names = ", ".join(f"<b>{e(f.description)}</b>" for f in refused)
+        self.held_html.value = notice(
+            f"Not recomputed: {names} {'is' if len(refused) == 1 else 'are'} not valid (see "
+            "the message under the field). The figures and charts below are those of the "
+            "last valid inputs.")
+        return True
 
     def _watch(self, *controls) -> None:
         for c in controls:
@@ -339,25 +512,23 @@ class _Panel:
         with self._hold():
             for name, value in values.items():
                 self._setters[name](value)
-        self.update()
+        self._changed()
         return self
 
-    def _number(self, name: str, control, scale: float = 1.0) -> None:
-        """A setter for a number control that shows ``scale`` × the SI value."""
-
-        def setter(value, control=control):
-            shown = float(value) * scale
-            lo, hi = getattr(control, "min", -math.inf), getattr(control, "max", math.inf)
-            if not (math.isfinite(shown) and lo <= shown <= hi):
-                raise InputError(M.OUTSIDE_CONTROL_RANGE, field=name, value=value,
-                                 expected=f"between {lo / scale:g} and {hi / scale:g} (SI)")
-            control.value = shown
-
-        self._setters[name] = setter
+    def _quantity(self, field: QuantityField, on_change=None, *, held: bool = True
+                  ) -> QuantityField:
+        """Register a quantity field: its setter, and what an edit recomputes (the whole
+        panel by default).  A ``held`` field that is refused holds the whole panel back;
+        another one (a side panel's input) holds only what its ``on_change`` draws."""
+        if held:
+            self.fields[field.name] = field
+        self._setters[field.name] = field.set_value
+        field.on_change = on_change or (lambda _f: self._changed())
+        return field
 
     def _choice(self, name: str, control) -> None:
         def setter(value, control=control):
-            values = [o[1] if isinstance(o, tuple) else o for o in control.options]
+            values = _values(control.options)
             if value not in values:
                 raise InputError(M.NOT_ALLOWED_VALUE, field=name, value=value,
                                  expected=", ".join(map(str, values)) or "none offered")
@@ -367,10 +538,19 @@ class _Panel:
 
     def _failed(self, err: PinlibError, views=()) -> None:
         self.error = err
-        self.status_html.value = _error_html(err)
+        self.status_html.value = error_html(err)
         for v in views:
             v.clear(f"no chart: {err.problem}")
 
     def _header(self, text: str) -> W.HTML:
-        return W.HTML(f'<h3 style="margin:2px 0">{_e(text)}</h3>{_caution_html()}')
+        return W.HTML(f'<h3 style="margin:2px 0">{e(text)}</h3>{caution_html()}',
+                      layout=block_layout())
 
+    def _columns(self, controls: list, outputs: list, below: list = (), *,
+                 basis: int = 560) -> W.VBox:
+        """The usual arrangement: the controls' column, the outputs beside or under it,
+        then ``below`` across the whole width."""
+        row = W.Box([W.VBox(list(controls), layout=column_layout()),
+                     W.VBox(list(outputs), layout=outputs_layout(basis))],
+                    layout=row_layout())
+        return W.VBox([row, *below], layout=W.Layout(width="100%", max_width="100%"))

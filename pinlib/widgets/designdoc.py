@@ -13,83 +13,81 @@ from pinlib.design import Design, design_from_text
 from pinlib.library.loader import BUILTIN_DIR, Library
 from pinlib.tomlfile import tomllib
 from pinlib.widgets.common import (
-    _LABEL,
-    _WIDE,
+    QuantityField,
     _num,
     _Panel,
+    field_layout,
+    style,
 )
 
 # =========================================================================== traces
 
 
 class _Trace:
-    """Trace controls: geometry (microstrip, stripline or per-length values) and length."""
+    """Trace controls: geometry (microstrip, stripline or per-length values) and length,
+    each value a :class:`~pinlib.widgets.common.QuantityField` read with its unit."""
 
     KINDS = (("microstrip", "microstrip"), ("stripline", "stripline"),
              ("per-length values", "per-length"))
 
-    def __init__(self, panel: _Panel, *, length_cm: float, max_cm: float, min_cm: float = 0.0):
+    def __init__(self, panel: _Panel, *, length: float, max_length: float,
+                 min_length: float = 0.0):
         self.kind = W.Dropdown(options=self.KINDS, value="microstrip", description="Trace",
-                               style=_LABEL, layout=_WIDE)
-        self.length = W.FloatSlider(value=length_cm, min=min_cm, max=max_cm, step=0.5,
-                                    description="Length (cm)", continuous_update=False,
-                                    style=_LABEL, layout=_WIDE)
-        self.width = W.BoundedFloatText(value=0.20, min=0.01, max=20.0, step=0.01,
-                                        description="Width (mm)", style=_LABEL, layout=_WIDE)
-        self.height = W.BoundedFloatText(value=0.18, min=0.01, max=20.0, step=0.01,
-                                         description="Height (mm)", style=_LABEL, layout=_WIDE)
-        self.thickness = W.BoundedFloatText(value=35.0, min=1.0, max=500.0, step=1.0,
-                                            description="Copper (µm)", style=_LABEL,
-                                            layout=_WIDE)
-        self.er = W.BoundedFloatText(value=4.2, min=1.0, max=20.0, step=0.1, description="εr",
-                                     style=_LABEL, layout=_WIDE)
-        self.c_per_cm = W.BoundedFloatText(value=0.8, min=0.0, max=100.0, step=0.05,
-                                           description="C (pF/cm)", style=_LABEL, layout=_WIDE)
-        self.delay_per_cm = W.BoundedFloatText(value=60.0, min=10.0, max=10000.0, step=1.0,
-                                               description="Delay (ps/cm)", style=_LABEL,
-                                               layout=_WIDE)
+                               style=style(), layout=field_layout())
+        q = panel._quantity
+        cm, mm = ("cm", 1e-2), ("mm", 1e-3)
+        self.length = q(QuantityField("length", "Length", "m", length, lo=min_length,
+                                      hi=max_length, shown=cm, placeholder="14 cm"))
+        self.width = q(QuantityField("width", "Width", "m", 0.20e-3, lo=0.01e-3, hi=20e-3,
+                                     shown=mm, placeholder="0.2 mm"))
+        self.height = q(QuantityField("height", "Height", "m", 0.18e-3, lo=0.01e-3, hi=20e-3,
+                                      shown=mm, placeholder="0.18 mm"))
+        self.thickness = q(QuantityField("thickness", "Copper", "m", 35e-6, lo=1e-6, hi=500e-6,
+                                         shown=("µm", 1e-6), placeholder="35 µm"))
+        self.er = q(QuantityField("er", "εr", "", 4.2, lo=1.0, hi=20.0, placeholder="4.2"))
+        self.c_per_length = q(QuantityField(
+            "capacitance_per_length", "C per length", "F/m", 0.8e-10, lo=0.0, hi=1e-8,
+            shown=("pF/cm", 1e-10), placeholder="0.8 pF/cm"))
+        self.delay_per_length = q(QuantityField(
+            "delay_per_length", "Delay per length", "s/m", 60e-10, lo=1e-9, hi=1e-6,
+            shown=("ps/cm", 1e-10), placeholder="60 ps/cm"))
         self.kind.observe(self._show_fields, names="value")
-        panel._watch(self.kind, self.length, self.width, self.height, self.thickness, self.er,
-                     self.c_per_cm, self.delay_per_cm)
+        panel._watch(self.kind)
         panel._choice("geometry", self.kind)
-        panel._number("length", self.length, 100.0)
-        panel._number("width", self.width, 1e3)
-        panel._number("height", self.height, 1e3)
-        panel._number("thickness", self.thickness, 1e6)
-        panel._number("er", self.er)
-        panel._number("capacitance_per_length", self.c_per_cm, 1e12 / 100.0)
-        panel._number("delay_per_length", self.delay_per_cm, 1e12 / 100.0)
-        self.box = W.VBox([self.kind, self.length, self.width, self.height, self.thickness,
-                           self.er, self.c_per_cm, self.delay_per_cm])
+        self.box = W.VBox([self.kind] + [f.box for f in (
+            self.length, self.width, self.height, self.thickness, self.er, self.c_per_length,
+            self.delay_per_length)], layout=W.Layout(width="100%"))
         self._show_fields()
 
     def _show_fields(self, change=None) -> None:
         kind = self.kind.value
         board = kind != "per-length"
-        for c in (self.width, self.height, self.thickness, self.er):
-            c.layout.display = None if board else "none"
-        for c in (self.c_per_cm, self.delay_per_cm):
-            c.layout.display = None if not board else "none"
+        for f in (self.width, self.height, self.thickness, self.er):
+            f.box.layout.display = None if board else "none"
+        for f in (self.c_per_length, self.delay_per_length):
+            f.box.layout.display = None if not board else "none"
         # microstrip: height above its plane; stripline: plane-to-plane spacing
-        self.height.description = "Spacing (mm)" if kind == "stripline" else "Height (mm)"
+        self.height.description = self.height.text.description = \
+            "Spacing" if kind == "stripline" else "Height"
 
     def geometry(self) -> dict | None:
         """The ``[board.geometry.NAME]`` table, or None for per-length values."""
         kind = self.kind.value
         if kind == "per-length":
             return None
-        out = {"kind": kind, "width": f"{_num(self.width.value)} mm"}
-        out["spacing" if kind == "stripline" else "height"] = f"{_num(self.height.value)} mm"
-        out["thickness"] = f"{_num(self.thickness.value)} µm"
+        out = {"kind": kind, "width": f"{_num(self.width.value * 1e3)} mm"}
+        out["spacing" if kind == "stripline" else "height"] = \
+            f"{_num(self.height.value * 1e3)} mm"
+        out["thickness"] = f"{_num(self.thickness.value * 1e6)} µm"
         out["er"] = float(self.er.value)
         return out
 
     def entry(self, geometry_name: str) -> dict:
         """The trace or line inline table (without a series resistor)."""
-        out = {"length": f"{_num(self.length.value)} cm"}
+        out = {"length": f"{_num(self.length.value * 100.0)} cm"}
         if self.kind.value == "per-length":
-            out["capacitance"] = f"{_num(self.c_per_cm.value)} pF/cm"
-            out["delay"] = f"{_num(self.delay_per_cm.value)} ps/cm"
+            out["capacitance"] = f"{_num(self.c_per_length.value * 1e10)} pF/cm"
+            out["delay"] = f"{_num(self.delay_per_length.value * 1e10)} ps/cm"
         else:
             out["geometry"] = geometry_name
         return out

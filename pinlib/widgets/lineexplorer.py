@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from pathlib import Path
 
 import ipywidgets as W
@@ -16,21 +17,23 @@ from pinlib.errors import InputError, PinlibError
 from pinlib.library import load_library
 from pinlib.library.loader import Library
 from pinlib.widgets.common import (
-    _LABEL,
-    _WIDE,
     ChartView,
+    QuantityField,
     StaticView,
-    _caution_html,
     _closest_option,
     _e24_options,
-    _error_html,
-    _notes_html,
     _num,
     _Panel,
-    _set_options,
-    _status_line,
-    checks_table,
-    figures_table,
+    _values,
+    block_layout,
+    button_layout,
+    field_layout,
+    heading,
+    note_widget,
+    set_options,
+    style,
+    toggle_layout,
+    with_button,
 )
 from pinlib.widgets.designdoc import (
     _design_doc,
@@ -38,6 +41,14 @@ from pinlib.widgets.designdoc import (
     _inline,
     _load,
     _Trace,
+)
+from pinlib.widgets.markup import (
+    caution_html,
+    checks_table,
+    error_html,
+    figures_table,
+    notes_html,
+    status_line,
 )
 
 # =========================================================================== line explorer
@@ -104,34 +115,40 @@ class LineExplorer(_Panel):
         drivers = self._driver_parts()
         self.driver_part = W.Dropdown(options=[(f"{k} — {p.title}", k) for k, p in
                                                drivers.items()],
-                                      description="Driver", style=_LABEL, layout=_WIDE)
-        self.driver_pin = W.Dropdown(options=[], description="Output pin", style=_LABEL,
-                                     layout=_WIDE)
+                                      description="Driver", style=style(),
+                                      layout=field_layout())
+        self.driver_pin = W.Dropdown(options=[], description="Output pin", style=style(),
+                                     layout=field_layout())
+        self.pin_note = note_widget()
         self.any_function = W.Checkbox(value=False, description="receivers of any pin "
-                                       "function", indent=False)
-        self.pick = W.Dropdown(options=[], description="Receiver", style=_LABEL, layout=_WIDE)
-        self.add_button = W.Button(description="Add", layout=W.Layout(width="70px"))
-        self.placed = W.Select(options=[], rows=5, description="Receivers", style=_LABEL,
-                               layout=_WIDE)
-        self.remove_button = W.Button(description="Remove", layout=W.Layout(width="70px"))
-        self.supply = W.BoundedFloatText(value=supply, min=0.8, max=5.5, step=0.05,
-                                         description="Supply (V)", style=_LABEL, layout=_WIDE)
-        self.trace = _Trace(self, length_cm=length * 100.0, max_cm=200.0, min_cm=0.5)
+                                       "function", indent=False, layout=field_layout())
+        self.pick = W.Dropdown(options=[], description="Receiver", style=style(),
+                               layout=field_layout())
+        self.pick_note = note_widget()
+        self.add_button = W.Button(description="Add", layout=button_layout())
+        self.placed = W.Select(options=[], rows=5, description="Receivers", style=style(),
+                               layout=field_layout())
+        self.remove_button = W.Button(description="Remove", layout=button_layout())
+        self.supply = self._quantity(QuantityField("supply", "Supply", "V", supply, lo=0.8,
+                                                   hi=5.5, placeholder="3.3 V"))
+        self.trace = _Trace(self, length=length, max_length=2.0, min_length=0.005)
         self.series_mode = W.ToggleButtons(options=["auto", "none", "fixed"], value="auto",
-                                           description="Series R", style=_LABEL)
+                                           description="Series R",
+                                           style=style(button_width="64px"),
+                                        layout=toggle_layout())
         self.series = W.SelectionSlider(options=_e24_options(1.0, 1000.0), value=33.0,
                                         description="Rs (E24)", continuous_update=False,
-                                        style=_LABEL, layout=_WIDE)
+                                        style=style(), layout=field_layout())
         self.edges = ChartView()
         self.waves = ChartView()
-        self.figures_html = W.HTML()
-        self.checks_html = W.HTML()
-        self.notes_html = W.HTML()
+        self.figures_html = W.HTML(layout=block_layout())
+        self.checks_html = W.HTML(layout=block_layout())
+        self.notes_html = W.HTML(layout=block_layout())
 
         self.driver_part.observe(self._driver_changed, names="value")
         self.driver_pin.observe(self._pin_changed, names="value")
         self.any_function.observe(self._pin_changed, names="value")
-        self._watch(self.supply, self.series_mode, self.series)
+        self._watch(self.series_mode, self.series)
         self.add_button.on_click(lambda _b: self.pick.value and
                                  self.add_receiver(*self.pick.value))
         self.remove_button.on_click(lambda _b: self.placed.value and
@@ -139,7 +156,6 @@ class LineExplorer(_Panel):
         self._choice("driver_part", self.driver_part)
         self._choice("driver_pin", self.driver_pin)
         self._setters["any_function"] = lambda v: setattr(self.any_function, "value", bool(v))
-        self._number("supply", self.supply)
         self._setters["series"] = self._set_series
 
         with self._hold():
@@ -147,7 +163,7 @@ class LineExplorer(_Panel):
             if part in drivers:
                 self.driver_part.value = part
             self._driver_changed()
-            if pin in [v for _, v in self.driver_pin.options]:
+            if pin in _values(self.driver_pin.options):
                 self.driver_pin.value = pin
             self._pin_changed()
             self._set_series(series)
@@ -167,7 +183,8 @@ class LineExplorer(_Panel):
             (f"{n} ({pin.function})", n) for n, pin in part.pins.items()
             if pin.drive == "push-pull"]
         with self._hold():
-            _set_options(self.driver_pin, pins, self.driver_pin.value)
+            set_options(self.driver_pin, pins, self.driver_pin.value, what="Output pin",
+                        said=self.pin_note)
         self._pin_changed()
 
     def _pin_changed(self, change=None) -> None:
@@ -182,7 +199,8 @@ class LineExplorer(_Panel):
                 if pin.drive == "input" and (self.any_function.value or pin.function == fn):
                     options.append((f"{pid}: {name} ({pin.function})", (pid, name)))
         with self._hold():
-            _set_options(self.pick, options, self.pick.value)
+            set_options(self.pick, options, self.pick.value, what="Receiver",
+                        said=self.pick_note)
         self._changed()
 
     def _set_series(self, value) -> None:
@@ -254,6 +272,7 @@ class LineExplorer(_Panel):
         if self._quiet:
             return
         self.updates += 1
+        self._show_held()
         try:
             text = self.design_text()
             design = _load(text, self.library)
@@ -275,14 +294,27 @@ class LineExplorer(_Panel):
         self.line_result = br.lines[0]
         self.figures = dict(self.line_result.figures)
         self.edge_data, self.wave_data = edge, wave
+        self._show_series()
         self._draw_edges(edge)
         self._draw_waves(wave)
-        self.status_html.value = _status_line(br, f"Line from {edge.driver} "
+        self.status_html.value = status_line(br, f"Line from {edge.driver} "
                                                   f"({self.driver_part.value} "
                                                   f"{self.driver_pin.value})")
         self.figures_html.value = figures_table(self.figures)
         self.checks_html.value = checks_table(br)
-        self.notes_html.value = _notes_html([br, self.line_result])
+        self.notes_html.value = notes_html([br, self.line_result])
+
+    def _show_series(self) -> None:
+        """The Rs slider shows the resistor in use: with ``auto`` the engine's choice (the
+        slider then disabled), with ``none`` disabled."""
+        mode = self.series_mode.value
+        self.series.disabled = mode != "fixed"
+        rs = self.figures.get("series_resistor")
+        if mode == "auto" and rs is not None and rs.value:
+            with self._hold():
+                for _, v in self.series.options:
+                    if math.isclose(v, float(rs.value), rel_tol=1e-9):
+                        self.series.value = v
 
     def _draw_edges(self, e) -> None:
         self.edges.draw(lambda: charts.spec(
@@ -305,21 +337,21 @@ class LineExplorer(_Panel):
     def static_view(self) -> StaticView:
         """The charts and tables as plain HTML, for exported pages."""
         if self.line_result is None:
-            return StaticView(_caution_html() + _error_html(self.error))
-        return StaticView(_caution_html() + self.status_html.value + self.edges.html()
+            return StaticView(caution_html() + error_html(self.error))
+        return StaticView(caution_html() + self.status_html.value + self.edges.html()
                           + self.waves.html() + self.figures_html.value
                           + self.checks_html.value)
 
     def _layout(self) -> W.Widget:
-        controls = W.VBox([
-            self.driver_part, self.driver_pin, self.supply,
-            W.HTML("<b>Receivers</b>"), self.any_function, W.HBox([self.pick, self.add_button]),
-            W.HBox([self.placed, self.remove_button]),
-            W.HTML("<b>Trace</b>"), self.trace.box,
-            W.HTML("<b>Termination</b>"), self.series_mode, self.series,
-        ], layout=W.Layout(width="430px"))
-        outputs = W.VBox([self.status_html, self.edges.widget, self.waves.widget,
-                          self.figures_html, self.checks_html, self.notes_html])
+        controls = [
+            self.driver_part, self.driver_pin, self.pin_note, self.supply.box,
+            heading("Receivers"), self.any_function, with_button(self.pick, self.add_button),
+            self.pick_note, with_button(self.placed, self.remove_button),
+            heading("Trace"), self.trace.box,
+            heading("Termination"), self.series_mode, self.series,
+        ]
+        outputs = [self.held_html, self.status_html, self.edges.widget, self.waves.widget,
+                   self.figures_html, self.notes_html]
         return W.VBox([self._header("A push-pull line and its termination"),
-                       W.HBox([controls, outputs])])
-
+                       self._columns(controls, outputs, [self.checks_html])],
+                      layout=W.Layout(width="100%"))

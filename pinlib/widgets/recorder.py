@@ -13,18 +13,24 @@ from pinlib.errors import InputError, LibraryError, PinlibError
 from pinlib.library import load_library
 from pinlib.library.loader import Library
 from pinlib.widgets.common import (
-    _LABEL,
-    _WIDE,
     StaticView,
-    _caution_html,
-    _e,
-    _error_html,
-    _field_row,
-    _inline_error,
-    _note,
     _Panel,
-    _set_options,
+    block_layout,
+    button_layout,
+    field_layout,
+    set_options,
+    style,
 )
+from pinlib.widgets.markup import block, caution_html, e, error_html, inline_error, note
+
+#: Width of a form field in the recorder (its error goes beside it). [px]
+FORM_WIDTH = 400
+
+
+def _field_row(control, error: W.HTML) -> W.Box:
+    """A form field with its error beside it (under it when the row is too narrow)."""
+    return W.Box([control, error], layout=W.Layout(display="flex", flex_flow="row wrap",
+                                                   align_items="center", width="100%"))
 
 # =========================================================================== recorder
 
@@ -55,9 +61,12 @@ class PartRecorder(_Panel):
     """
 
     _NEW = ("id", "extends", "title", "new_basis", "new_source")
+    #: The tabs' titles (short: a tab's width is limited).
+    TAB_TITLES = ("New part", "Record a value")
     _REC = ("part", "field", "value", "typ", "basis", "source")
 
-    def __init__(self, folder: str | os.PathLike, *, library_folders=()):
+    def __init__(self, folder: str | os.PathLike, *, library_folders=(),
+                 title: str | None = None):
         from pinlib.library.record import RECORD_BASES
 
         super().__init__()
@@ -66,45 +75,62 @@ class PartRecorder(_Panel):
         self.library = self._reload()
         self.errors: dict[str, PinlibError] = {}
         self.written: Path | None = None
-        s = {"style": _LABEL, "layout": _WIDE}
-        self.new_id = W.Text(placeholder="eeprom-i2c-acme", description="New id", **s)
+
+        def s():  # each control its own style and layout
+            return {"style": style(), "layout": field_layout(width=f"{FORM_WIDTH}px",
+                                                             max_width="100%")}
+
+        self.new_id = W.Text(placeholder="eeprom-i2c-acme", description="New id", **s())
         self.extends = W.Dropdown(options=sorted(self.library.parts), description="Extends",
-                                  **s)
-        self.new_title = W.Text(placeholder="the class's title", description="Title", **s)
+                                  **s())
+        self.new_title = W.Text(placeholder="the class's title", description="Title", **s())
         self.new_basis = W.Dropdown(options=list(RECORD_BASES) + ["generic"],
-                                    value="datasheet", description="Basis", **s)
-        self.new_source = W.Text(placeholder="document, revision", description="Source", **s)
-        self.create_button = W.Button(description="Create the part")
-        self.part = W.Dropdown(options=[], description="Team part", **s)
+                                    value="datasheet", description="Basis", **s())
+        self.new_source = W.Text(placeholder="document, revision", description="Source",
+                                 **s())
+        self.create_button = W.Button(description="Create the part",
+                                      layout=button_layout("160px"))
+        self.part = W.Dropdown(options=[], description="Team part", **s())
         self.field = W.Combobox(options=[], placeholder="sda.c_in", ensure_option=False,
-                                description="Field", **s)
-        self.value = W.Text(placeholder="12 pF", description="Value", **s)
-        self.typ = W.Text(placeholder="optional", description="Typical", **s)
+                                description="Field", **s())
+        self.value = W.Text(placeholder="12 pF", description="Value", **s())
+        self.typ = W.Text(placeholder="optional", description="Typical", **s())
         self.basis = W.Dropdown(options=list(RECORD_BASES), value="datasheet",
-                                description="Basis", **s)
-        self.source = W.Text(placeholder="datasheet rev B, table 6", description="Source", **s)
-        self.record_button = W.Button(description="Record the value")
-        self.message = W.HTML()
+                                description="Basis", **s())
+        self.source = W.Text(placeholder="datasheet rev B, table 6", description="Source",
+                             **s())
+        self.record_button = W.Button(description="Record the value",
+                                      layout=button_layout("160px"))
+        self.message = W.HTML(layout=block_layout())
         names = {"id": self.new_id, "extends": self.extends, "title": self.new_title,
                  "new_basis": self.new_basis, "new_source": self.new_source,
                  "part": self.part, "field": self.field, "value": self.value, "typ": self.typ,
                  "basis": self.basis, "source": self.source}
         self.controls = names
-        self.error_labels = {k: W.HTML() for k in names}
+        self.error_labels = {k: W.HTML(layout=W.Layout(flex="1 1 240px", min_width="0",
+                                                       margin="0 0 0 8px"))
+                             for k in names}
         self.create_button.on_click(lambda _b: self.create())
         self.record_button.on_click(lambda _b: self.record())
         self.part.observe(self._part_changed, names="value")
         for name, control in names.items():
             control.observe(lambda change, name=name: self._edited(name), names="value")
         self._refresh_parts()
-        new_form = W.VBox([_field_row(names[k], self.error_labels[k]) for k in self._NEW]
-                          + [self.create_button])
-        rec_form = W.VBox([_field_row(names[k], self.error_labels[k]) for k in self._REC]
-                          + [self.record_button])
-        self.tabs = W.Tab(children=[new_form, rec_form],
-                          titles=("New part (extends a class)", "Record a value"))
-        self.widget = W.VBox([self._header(f"Record part values into {self.folder}"),
-                              self.tabs, self.message])
+        new_form = W.VBox(
+            [W.HTML(block("A new part in the team folder that extends a stored class: it "
+                          "starts with the class's values, and records its own source."))]
+            + [_field_row(names[k], self.error_labels[k]) for k in self._NEW]
+            + [self.create_button], layout=W.Layout(width="100%"))
+        rec_form = W.VBox(
+            [W.HTML(block("One value of a team part, with its unit, its source and its "
+                          "basis; a refusal is shown beside its field and nothing is "
+                          "written."))]
+            + [_field_row(names[k], self.error_labels[k]) for k in self._REC]
+            + [self.record_button], layout=W.Layout(width="100%"))
+        self.tabs = W.Tab(children=[new_form, rec_form], titles=self.TAB_TITLES,
+                          layout=W.Layout(width="auto"))
+        self.widget = W.VBox([self._header(title or f"Record part values into {self.folder}"),
+                              self.tabs, self.message], layout=W.Layout(width="100%"))
 
     def _reload(self) -> Library:
         folders = self.library_folders + ([self.folder] if self.folder.is_dir() else [])
@@ -123,8 +149,9 @@ class PartRecorder(_Panel):
 
     def _refresh_parts(self) -> None:
         with self._hold():
-            _set_options(self.part, self._team_parts(), self.part.value)
-            _set_options(self.extends, sorted(self.library.parts), self.extends.value)
+            set_options(self.part, self._team_parts(), self.part.value, what="Team part")
+            set_options(self.extends, sorted(self.library.parts), self.extends.value,
+                        what="Extends")
         self._part_changed()
 
     def _part_changed(self, change=None) -> None:
@@ -150,8 +177,14 @@ class PartRecorder(_Panel):
     def _show(self, errors: dict[str, PinlibError]) -> None:
         self.errors = errors
         for name, label in self.error_labels.items():
-            label.value = _inline_error(errors.get(name))
-        self.message.value = _error_html(errors["form"]) if "form" in errors else ""
+            label.value = inline_error(errors.get(name))
+        self.message.value = error_html(errors["form"]) if "form" in errors else ""
+        tabs = getattr(self, "tabs", None)
+        if tabs is not None:  # show the form whose field is refused
+            if set(errors) & set(self._NEW):
+                tabs.selected_index = 0
+            elif set(errors) & set(self._REC):
+                tabs.selected_index = 1
 
     def _edited(self, name: str) -> None:
         """A field was changed: its old refusal no longer applies."""
@@ -259,15 +292,15 @@ class PartRecorder(_Panel):
         return "form"
 
     def _done(self, path: Path, what: str, shown: Path) -> Path:
+        self.tabs.selected_index = 1  # after a new part, its values are recorded next
         self.written = path
         self.library = self._reload()
         self._refresh_parts()
         self._show({})
-        self.message.value = (f'<div style="font-size:12px">{_e(what)} '
-                              f"<code>{_e(shown)}</code></div>")
+        self.message.value = block(f"{e(what)} <code>{e(shown)}</code>")
         return path
 
     def static_view(self) -> StaticView:
         """What the last action did, as plain HTML."""
-        return StaticView(_caution_html() + (self.message.value or _note("nothing recorded")))
+        return StaticView(caution_html() + (self.message.value or note("nothing recorded")))
 

@@ -12,26 +12,36 @@ from pinlib import charts, plotdata
 from pinlib import messages as M
 from pinlib.design import Design, design_from_text, load_design
 from pinlib.errors import InputError, PinlibError
+from pinlib.labels import check_label
 from pinlib.quantity import format_si
 from pinlib.report import format_value
 from pinlib.result import BusResult
 from pinlib.tomlfile import tomllib
 from pinlib.widgets.common import (
-    _CELL,
-    _LABEL,
-    _NUM,
-    _WIDE,
     ChartView,
+    QuantityField,
     StaticView,
-    _caution_html,
-    _e,
-    _error_html,
-    _notes_html,
     _num,
     _Panel,
-    _status_line,
-    checks_table,
+    block_layout,
+    field_layout,
     find_file,
+    note_widget,
+    style,
+    toggle_layout,
+)
+from pinlib.widgets.markup import (
+    CELL,
+    NUM,
+    TABLE,
+    block,
+    caution_html,
+    checks_table,
+    e,
+    error_html,
+    note,
+    notes_html,
+    status_line,
 )
 
 # =========================================================================== SPI budget
@@ -55,6 +65,17 @@ class ClockLimit:
     what: str
     clock: float
     source: str
+
+    @property
+    def label(self) -> str:
+        """The requirement in words: ``"COPI setup, U7"``, ``"Edge time, SCLK"``,
+        ``"f(max) of U1"``."""
+        kind, _, who = self.what.partition(" ")
+        if kind == "f_max":
+            return f"f(max) of {who}"
+        if kind == "edge-time":
+            return f"{check_label(kind)}, {who.upper()}"
+        return f"{check_label(kind)}, {who}" if who else check_label(kind)
 
 
 class SpiBudget(_Panel):
@@ -105,33 +126,42 @@ class SpiBudget(_Panel):
         self.design = self.bus_result = self.analysis = self.budget_data = None
         self.figures: dict = {}
         self.limits: list[ClockLimit] = []
-        self.bus = W.Dropdown(options=spi, value=bus, description="Bus", style=_LABEL,
-                              layout=_WIDE)
-        self.clock = W.BoundedFloatText(value=1.0, min=0.001, max=1000.0, step=0.5,
-                                        description="Clock (MHz)", style=_LABEL, layout=_WIDE)
+        self.bus = W.Dropdown(options=spi, value=bus, description="Bus", style=style(),
+                              layout=field_layout())
+        self.bus_note = note_widget()
+        self.clock = self._quantity(QuantityField("clock", "Clock", "Hz", 1e6, lo=1e3,
+                                                  hi=1e9, placeholder="10 MHz"))
         self.spi_mode = W.ToggleButtons(options=[0, 1, 2, 3], value=0, description="SPI mode",
-                                        style=_LABEL)
+                                        style=style(button_width="48px"),
+                                        layout=toggle_layout())
         self.chart = ChartView()
-        self.max_html = W.HTML()
-        self.limits_html = W.HTML()
-        self.checks_html = W.HTML()
-        self.notes_html = W.HTML()
+        self.max_html = W.HTML(layout=block_layout())
+        self.limits_html = W.HTML(layout=block_layout())
+        self.checks_html = W.HTML(layout=block_layout())
+        self.notes_html = W.HTML(layout=block_layout())
         self.bus.observe(self._bus_changed, names="value")
-        self._watch(self.clock, self.spi_mode)
+        self._watch(self.spi_mode)
         self._choice("bus", self.bus)
-        self._number("clock", self.clock, 1e-6)
         self._choice("spi_mode", self.spi_mode)
         self._bus_changed()
-        self.widget = W.VBox([self._header("SPI timing budget"), W.HBox([
-            W.VBox([self.bus, self.clock, self.spi_mode, self.max_html, self.limits_html],
-                   layout=W.Layout(width="430px")),
-            W.VBox([self.status_html, self.chart.widget, self.checks_html, self.notes_html])])])
+        self.widget = W.VBox([
+            self._header("SPI timing budget"),
+            self._columns([self.bus, self.bus_note, self.clock.box, self.spi_mode,
+                           self.max_html, self.limits_html],
+                          [self.held_html, self.status_html, self.chart.widget,
+                           self.notes_html], [self.checks_html])],
+            layout=W.Layout(width="100%"))
 
     def _bus_changed(self, change=None) -> None:
+        """Another bus: its clock and mode start as the design saved them (and the note
+        under the bus says so)."""
         b = self.base.bus(self.bus.value)
         with self._hold():
-            self.clock.value = float(b.clock) * 1e-6
+            self.clock.set_value(float(b.clock))
             self.spi_mode.value = int(b.spi_mode)
+        self.bus_note.value = note(f"Clock and SPI mode start as saved in the design for "
+                                   f"this bus: {format_si(b.clock, 'Hz')}, mode "
+                                   f"{int(b.spi_mode)}.")
         self._changed()
 
     def _bus_index(self) -> int:
@@ -141,7 +171,7 @@ class SpiBudget(_Panel):
         """The design's data with the chosen bus's clock and mode as the controls say."""
         data = copy.deepcopy(self._data)
         raw = data["bus"][self._bus_index()]
-        raw["clock"] = f"{_num(self.clock.value)} MHz"
+        raw["clock"] = f"{_num(self.clock.value * 1e-6)} MHz"
         raw["spi_mode"] = int(self.spi_mode.value)
         return data
 
@@ -152,6 +182,7 @@ class SpiBudget(_Panel):
         if self._quiet:
             return
         self.updates += 1
+        self._show_held()
         try:
             design = design_from_text(self.design_data(), self.base.text, self.base.path,
                                       library=self.library)
@@ -177,11 +208,11 @@ class SpiBudget(_Panel):
                 status=tb.status,
                 title=f"SPI timing budget, {bus.id} at {format_si(tb.clock, 'Hz')}",
                 subtitle=f"SPI mode {bus.spi_mode}; the tick is the time available"))
-        self.status_html.value = _status_line(br, f"Bus {br.id} at "
+        self.status_html.value = status_line(br, f"Bus {br.id} at "
                                                   f"{format_si(bus.clock, 'Hz')}")
         self._show_limits()
         self.checks_html.value = checks_table(br)
-        self.notes_html.value = _notes_html([br] + list(br.lines))
+        self.notes_html.value = notes_html([br] + list(br.lines))
 
     @staticmethod
     def _limits(sa, br: BusResult) -> list[ClockLimit]:
@@ -209,23 +240,23 @@ class SpiBudget(_Panel):
     def _show_limits(self) -> None:
         f = self.figures.get("max_clock")
         top = self.limits[0] if self.limits else None
-        text = f"Highest clock: <b>{_e(format_value(f.value, f.unit))}</b>" if f else ""
+        text = f"Highest clock: <b>{e(format_value(f.value, f.unit))}</b>" if f else ""
         if top is not None:
-            text += f", set by <b>{_e(top.what)}</b> ({_e(top.source)})"
-        self.max_html.value = f'<div style="font-size:13px;margin:4px 0">{text}</div>'
-        rows = "".join(f'<tr><td style="{_CELL}">{_e(x.what)}</td>'
-                       f'<td style="{_NUM}">{_e(format_value(x.clock, "Hz"))}</td></tr>'
+            text += f", set by <b>{e(top.label)}</b> ({e(top.source)})"
+        self.max_html.value = block(text, size=13)
+        rows = "".join(f'<tr title="{e(x.what)}"><td style="{CELL}">{e(x.label)}</td>'
+                       f'<td style="{NUM}">{e(format_value(x.clock, "Hz"))}</td></tr>'
                        for x in self.limits[:8])
         self.limits_html.value = (
-            '<table style="border-collapse:collapse;font-size:12px">'
+            f'<table style="{TABLE}">'
             '<caption style="text-align:left;font-weight:700">Each requirement\'s own '
             f'highest clock</caption>{rows}</table>')
 
     def static_view(self) -> StaticView:
         """The chart and tables as plain HTML, for exported pages."""
         if self.bus_result is None:
-            return StaticView(_caution_html() + _error_html(self.error))
-        return StaticView(_caution_html() + self.status_html.value + self.max_html.value
+            return StaticView(caution_html() + error_html(self.error))
+        return StaticView(caution_html() + self.status_html.value + self.max_html.value
                           + self.chart.html() + self.limits_html.value
                           + self.checks_html.value)
 

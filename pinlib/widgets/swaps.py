@@ -1,4 +1,11 @@
-"""Workbench 05: rerun a saved design after a substitution (:class:`SwapExplorer`)."""
+"""Workbench 05: rerun a saved design after a substitution (:class:`SwapExplorer`).
+
+The view follows the position the user works on: after a substitution the Device list
+shows the position just changed, and the candidates ranking, the Before/After charts and
+the checks are those of that position (the charts of one of its buses, chosen in
+*Chart bus*: the first with a check whose status changed, by default).  The change list
+is grouped by bus, the buses with a status change first.
+"""
 
 from __future__ import annotations
 
@@ -12,32 +19,51 @@ import numpy as np
 from pinlib import charts, plotdata
 from pinlib import messages as M
 from pinlib.check import check_design
+from pinlib.compare import format_change, format_figure
 from pinlib.design import load_design
 from pinlib.errors import PinlibError
+from pinlib.labels import check_label, figure_label, short_label, shown_figures
 from pinlib.quantity import format_si
 from pinlib.report import format_value
 from pinlib.widgets.common import (
-    _CELL,
-    _HEAD,
-    _LABEL,
-    _NUM,
-    _WIDE,
     ChartView,
     StaticView,
-    _badge,
-    _caution_html,
-    _e,
-    _error_html,
-    _inline_error,
-    _margin,
-    _note,
     _Panel,
-    _set_options,
-    checks_table,
+    _values,
+    block_layout,
+    button_layout,
+    field_layout,
     find_file,
+    heading,
+    row_layout,
+    set_options,
+    style,
+    with_button,
+)
+from pinlib.widgets.markup import (
+    BLOCK,
+    CELL,
+    HEAD,
+    NUM,
+    TABLE,
+    badge,
+    block,
+    caution_html,
+    checks_table,
+    e,
+    error_html,
+    inline_error,
+    margin,
+    note,
 )
 
-# =========================================================================== swaps
+#: How many candidates the ranking table shows.
+TOP = 10
+
+
+def _chart_layout() -> W.Layout:
+    """A Before/After chart: side by side when both fit at their width, stacked when not."""
+    return W.Layout(flex="1 1 520px", min_width="0", max_width="100%", margin="0 8px 0 0")
 
 
 class SwapExplorer(_Panel):
@@ -61,10 +87,15 @@ class SwapExplorer(_Panel):
         :func:`pinlib.compare.compare` of the two snapshots.
     refused : list of str
         Why the last substitution asked for was refused (empty when applied).
+    ref : ipywidgets.Dropdown
+        The position shown; a substitution selects the position it changed.
+    chart_bus : ipywidgets.Dropdown
+        Which of the position's buses the charts and the checks table show.
     before, after : ChartView
-        The chart of the first bus the substituted device is on, before and after.
+        That bus's chart before and after the substitutions.
     ranking : object or None
-        What :mod:`pinlib.candidates` ranked for the position, when that module exists.
+        What :mod:`pinlib.candidates` ranked for the position (in the design with the
+        substitutions), when that module exists.
     """
 
     def __init__(self, path: str | os.PathLike, *, folders=()):
@@ -74,40 +105,48 @@ class SwapExplorer(_Panel):
         self.refused: list[str] = []
         self.changes = None
         self.ranking = None
-        self.path_box = W.Text(value=str(path), description="Design", style=_LABEL,
-                               layout=W.Layout(width="520px"))
-        self.load_button = W.Button(description="Load", layout=W.Layout(width="70px"))
-        self.path_error = W.HTML()
-        self.ref = W.Dropdown(options=[], description="Device", style=_LABEL, layout=_WIDE)
-        self.new_part = W.Dropdown(options=[], description="Put there", style=_LABEL,
-                                   layout=_WIDE)
-        self.apply_button = W.Button(description="Apply", layout=W.Layout(width="70px"))
-        self.reset_button = W.Button(description="Reset", layout=W.Layout(width="70px"))
-        self.refused_html = W.HTML()
-        self.swaps_html = W.HTML()
-        self.changes_html = W.HTML()
-        self.checks_html = W.HTML()
-        self.before = ChartView("load a design")
-        self.after = ChartView("apply a substitution")
-        self.candidates_html = W.HTML()
-        self.candidates_box = W.VBox([W.HTML("<b>Candidates for the position</b>"),
-                                      self.candidates_html])
-        self.candidates_note = W.HTML()
+        self._ranked: tuple | None = None
+        self._computed: dict | None = None
+        self._choose_bus = False
+        self.path_box = W.Text(value=str(path), description="Design", style=style(),
+                               layout=W.Layout(width="auto", max_width="720px"))
+        self.load_button = W.Button(description="Load", layout=button_layout())
+        self.path_error = W.HTML(layout=block_layout())
+        self.ref = W.Dropdown(options=[], description="Device", style=style(),
+                              layout=field_layout())
+        self.new_part = W.Dropdown(options=[], description="Put there", style=style(),
+                                   layout=field_layout())
+        self.apply_button = W.Button(description="Apply", layout=button_layout())
+        self.reset_button = W.Button(description="Reset", layout=button_layout())
+        self.chart_bus = W.Dropdown(options=[], description="Chart bus", style=style(),
+                                    layout=field_layout())
+        self.refused_html = W.HTML(layout=block_layout())
+        self.swaps_html = W.HTML(layout=block_layout())
+        self.changes_html = W.HTML(layout=block_layout())
+        self.checks_html = W.HTML(layout=block_layout())
+        self.before = ChartView("load a design", layout=_chart_layout())
+        self.after = ChartView("apply a substitution", layout=_chart_layout())
+        self.candidates_html = W.HTML(layout=block_layout())
+        self.candidates_box = W.VBox([heading("Candidates for the position"),
+                                      self.candidates_html], layout=block_layout())
+        self.candidates_note = W.HTML(layout=block_layout())
         self.load_button.on_click(lambda _b: self._load_clicked())
         self.apply_button.on_click(lambda _b: self.new_part.value and
                                    self.apply_swap(self.ref.value, self.new_part.value))
         self.reset_button.on_click(lambda _b: self.reset())
         self.ref.observe(self._ref_changed, names="value")
+        self._watch(self.chart_bus)
         self.widget = W.VBox([
             self._header("Rerun a saved design after a substitution"),
-            W.HBox([self.path_box, self.load_button]), self.path_error,
-            W.HBox([W.VBox([self.ref, self.new_part, W.HBox([self.apply_button,
-                                                             self.reset_button]),
-                            self.refused_html, self.swaps_html],
-                           layout=W.Layout(width="430px")),
-                    W.VBox([self.status_html, self.changes_html])]),
-            W.HBox([self.before.widget, self.after.widget]),
-            self.candidates_box, self.candidates_note, self.checks_html])
+            with_button(self.path_box, self.load_button), self.path_error,
+            self._columns(
+                [self.ref, self.new_part,
+                 W.HBox([self.apply_button, self.reset_button]), self.refused_html,
+                 self.swaps_html, heading("Charts and checks"), self.chart_bus],
+                [self.status_html, self.changes_html], basis=420),
+            W.Box([self.before.widget, self.after.widget], layout=row_layout()),
+            self.candidates_box, self.candidates_note, self.checks_html],
+            layout=W.Layout(width="100%"))
         self.load(path)
 
     # ---------------------------------------------------------------- loading
@@ -121,27 +160,32 @@ class SwapExplorer(_Panel):
         self.before_snapshot = snapshot(design, result)
         self.swaps = {}
         self.refused = []
-        self.ranking = None
+        self.ranking = self._ranked = self._computed = None
+        self.refused_html.value = ""
         with self._hold():
             self.path_box.value = str(path)
             refs = {}
             for b in design.buses:
                 for d in b.devices:
-                    refs.setdefault(d.ref, f"{d.ref} — {d.part_id} ({b.id})")
-            _set_options(self.ref, [(label, ref) for ref, label in refs.items()],
-                         self.ref.value)
+                    refs.setdefault(d.ref, [d.part_id, []])[1].append(b.id)
+            set_options(self.ref, [(f"{ref} — {pid} ({', '.join(buses)})", ref)
+                                   for ref, (pid, buses) in refs.items()], self.ref.value)
         self._ref_changed()
 
     def _load_clicked(self) -> None:
         try:
             self.load(self.path_box.value.strip())
         except PinlibError as err:
-            self.path_error.value = _inline_error(err)
+            self.path_error.value = inline_error(err)
             return
         self.path_error.value = ""
 
     def _places(self, ref: str) -> list:
         return [(b, d) for b in self.design.buses for d in b.devices if d.ref == ref]
+
+    def _part_at(self, ref: str) -> str:
+        """The part at a position now (with the substitutions)."""
+        return self.swaps.get(ref) or self._places(ref)[0][1].part_id
 
     def refusals(self, ref: str, part_id: str) -> list[str]:
         """Why ``part_id`` cannot stand in ``ref``'s position (empty: it can)."""
@@ -150,33 +194,39 @@ class SwapExplorer(_Panel):
         return swap_refusals(self.design, ref, part_id, field="ref")[1]
 
     def _ref_changed(self, change=None) -> None:
+        """Another position: the parts that can stand there, and its buses to chart."""
         ref = self.ref.value
-        options = []
+        options, buses = [], []
         if ref:
-            current = self._places(ref)[0][1].part_id
+            current = self._part_at(ref)
             for pid, part in sorted(self.design.library.placeable().items()):
                 if pid != current and part.category != "cable" and not self.refusals(ref, pid):
                     options.append((f"{pid} — {part.title}", pid))
+            buses = list(dict.fromkeys(b.id for b, _ in self._places(ref)))
         with self._hold():
-            _set_options(self.new_part, options, self.new_part.value)
+            set_options(self.new_part, options, self.new_part.value)
+            set_options(self.chart_bus, buses, self.chart_bus.value)
         self._changed()
 
     # ---------------------------------------------------------------- swapping
     def apply_swap(self, ref: str, part_id: str) -> list[str]:
         """Substitute ``part_id`` at ``ref`` and rerun; return the reasons for a refusal
-        (empty when applied)."""
+        (empty when applied).  The view then shows the position ``ref``."""
         reasons = self.refusals(ref, part_id)
         self.refused = reasons
         if reasons:
-            self.refused_html.value = (f'<div style="color:{charts.FAIL};font-size:12px">'
-                                       + _e(M.SWAP_REFUSED.format(
-                                           ref=ref, new=part_id,
-                                           old=self._places(ref)[0][1].part_id)) + ":<ul>"
-                                       + "".join(f"<li>{_e(r)}</li>" for r in reasons)
-                                       + "</ul></div>")
+            self.refused_html.value = block(
+                f'<span style="color:{charts.FAIL}">'
+                + e(M.SWAP_REFUSED.format(ref=ref, new=part_id, old=self._part_at(ref)))
+                + ":<ul>" + "".join(f"<li>{e(r)}</li>" for r in reasons) + "</ul></span>")
             return reasons
         self.refused_html.value = ""
         self.swaps[ref] = part_id
+        self._choose_bus = True
+        with self._hold():
+            if ref in _values(self.ref.options):
+                self.ref.value = ref
+            self._ref_changed()  # the part now there is no longer offered
         self.update()
         return []
 
@@ -185,76 +235,151 @@ class SwapExplorer(_Panel):
         self.swaps = {}
         self.refused = []
         self.refused_html.value = ""
+        with self._hold():
+            self._ref_changed()
         self.update()
 
     def update(self) -> None:
-        """Rerun the design with the substitutions and show what changed."""
+        """Rerun the design with the substitutions (when they changed) and show the
+        position selected: change list, charts, ranking, checks."""
         from pinlib.compare import compare, snapshot
 
         if self._quiet:
             return
         self.updates += 1
-        try:
-            if self.swaps:
-                swapped = self.design.with_parts(self.swaps)
-                swapped_result = check_design(swapped)
-                self.changes = compare(self.before_snapshot, snapshot(swapped, swapped_result))
-            else:
-                swapped, swapped_result, self.changes = self.design, self.result, None
-        except PinlibError as err:
-            self._failed(err, [self.after])
-            return
+        if self._computed != self.swaps:
+            try:
+                if self.swaps:
+                    swapped = self.design.with_parts(self.swaps)
+                    swapped_result = check_design(swapped)
+                    changes = compare(self.before_snapshot, snapshot(swapped, swapped_result))
+                else:
+                    swapped, swapped_result, changes = self.design, self.result, None
+            except PinlibError as err:
+                self._failed(err, [self.after])
+                return
+            self.swapped, self.swapped_result, self.changes = swapped, swapped_result, changes
+            self._computed = dict(self.swaps)
         self.error = None
-        self.swapped, self.swapped_result = swapped, swapped_result
-        self.swaps_html.value = ("<b>Substitutions</b><ul>" + "".join(
-            f"<li>{_e(r)}: {_e(self._places(r)[0][1].part_id)} → {_e(p)}</li>"
-            for r, p in self.swaps.items()) + "</ul>") if self.swaps else _note(
+        if self._choose_bus:
+            self._choose_bus = False
+            self._pick_chart_bus()
+        self.swaps_html.value = block("<b>Substitutions</b><ul>" + "".join(
+            f"<li>{e(r)}: {e(self._places(r)[0][1].part_id)} → {e(p)}</li>"
+            for r, p in self.swaps.items()) + "</ul>") if self.swaps else note(
             "no substitution yet")
-        self.status_html.value = (f'<div style="font-size:14px">Design '
-                                  f"{_badge(self.result.status)} → "
-                                  f"{_badge(swapped_result.status)}</div>")
+        self.status_html.value = block(f"Design {badge(self.result.status)} → "
+                                       f"{badge(self.swapped_result.status)}", size=14)
         self.changes_html.value = self._changes_html()
         self._draw()
         self._rank()
         focus = self._focus_bus()
-        self.checks_html.value = checks_table(swapped_result.bus(focus.id),
-                                              f"Checks of bus {focus.id} after the "
-                                              "substitution") if focus is not None else ""
+        self.checks_html.value = checks_table(
+            self.swapped_result.bus(focus.id),
+            f"Checks of bus {focus.id}" + (" after the substitutions" if self.swaps else "")
+        ) if focus is not None else ""
+
+    def _pick_chart_bus(self) -> None:
+        """After a substitution: chart the position's first bus with a status change."""
+        buses = _values(self.chart_bus.options)
+        changed = [] if self.changes is None else \
+            [c.path.split("/")[0] for c in self.changes.status_changes]
+        pick = next((b for b in buses if b in changed), None)
+        if pick is not None and pick != self.chart_bus.value:
+            with self._hold():
+                self.chart_bus.value = pick
+
+    # ---------------------------------------------------------------- change list
+    def _bus_order(self) -> list[str]:
+        """Bus ids, those with a status change first, then in the design's order."""
+        ids = [b.id for b in self.design.buses]
+        changed = {c.path.split("/")[0] for c in self.changes.status_changes}
+        return sorted(ids, key=lambda b: (b not in changed, ids.index(b)))
 
     def _changes_html(self) -> str:
         cl = self.changes
         if cl is None:
-            return _note("apply a substitution to see what changes")
+            return note("apply a substitution to see what changes")
         if cl.empty:
-            return _note("no check changed status, no figure moved beyond "
-                         f"{cl.threshold:.0%}, no part value differs")
+            return note("no check changed status, no figure moved beyond "
+                        f"{cl.threshold:.0%}, no part value differs")
         out = []
-        if cl.status_changes:
-            out.append("<b>Checks whose status changed</b><ul>" + "".join(
-                f"<li>{_e(c.format())}</li>" for c in cl.status_changes) + "</ul>")
-        if cl.figure_changes:
-            out.append(f"<b>Figures that moved more than {cl.threshold:.0%}</b><ul>" + "".join(
-                f"<li>{_e(c.format())}</li>" for c in cl.figure_changes) + "</ul>")
+        for bus in self._bus_order():
+            status = [c for c in cl.status_changes if c.path.split("/")[0] == bus]
+            figures = [c for c in cl.figure_changes if c.path.split("/")[0] == bus]
+            if not (status or figures):
+                continue
+            rows = self._figure_rows(figures)
+            head = (f"Bus <b>{e(bus)}</b>: {len(status)} check"
+                    f"{'' if len(status) == 1 else 's'} changed status, {len(rows)} figure"
+                    f"{'' if len(rows) == 1 else 's'} moved more than {cl.threshold:.0%}")
+            body = ""
+            if status:
+                body += "<ul>" + "".join(self._status_item(c) for c in status) + "</ul>"
+            if rows:
+                body += (f'<table style="{TABLE}"><tr><th style="{HEAD}">where</th>'
+                         f'<th style="{HEAD}">figure</th><th style="{HEAD}">before → after'
+                         f'</th><th style="{HEAD}">change</th></tr>{"".join(rows)}</table>')
+            opened = " open" if status or bus == self.chart_bus.value else ""
+            out.append(f"<details{opened}><summary>{head}</summary>{body}</details>")
         if cl.part_changes:
-            out.append("<b>Part values behind the change</b><ul>" + "".join(
-                "<li>" + "<br>".join(_e(line) for line in pc.lines()) + "</li>"
-                for pc in cl.part_changes) + "</ul>")
-        return f'<div style="font-size:12px">{"".join(out)}</div>'
+            items = "".join("<li>" + "<br>".join(e(line) for line in pc.lines()) + "</li>"
+                            for pc in cl.part_changes)
+            out.append(f"<details><summary>Part values behind the change "
+                       f"({len(cl.part_changes)} part{'' if len(cl.part_changes) == 1 else 's'})"
+                       f"</summary><ul>{items}</ul></details>")
+        return block("".join(out))
 
+    @staticmethod
+    def _status_item(c) -> str:
+        where = " ".join(x for x in (c.path.partition("/")[2], c.subject) if x)
+        if c.old_subject:
+            where += f" (was {c.old_subject})"
+        values = ""
+        if c.old is not None and c.new is not None:
+            values = (f"{format_figure(c.old_value, c.unit)} → "
+                      f"{format_figure(c.new_value, c.unit)}")
+        limit = c.new_limit if c.new is not None else c.old_limit
+        if limit is not None and not isinstance(limit, bool):
+            values += f"{', ' if values else ''}limit {format_figure(limit, c.unit)}"
+        return (f'<li title="{e(c.format())}">{badge(c.old or "absent")} → '
+                f"{badge(c.new or 'absent')} <b>{e(check_label(c.check))}</b> {e(where)}"
+                + (f" ({e(values)})" if values else "") + "</li>")
+
+    @staticmethod
+    def _figure_rows(figures) -> list[str]:
+        """Rows of moved figures, by segment or line, each figure once
+        (:func:`pinlib.labels.shown_figures`)."""
+        by_path: dict[str, dict] = {}
+        for c in figures:
+            by_path.setdefault(c.path, {})[c.name] = c
+        rows = []
+        for path, named in by_path.items():
+            where = path.partition("/")[2] or "bus"
+            for name in shown_figures({n: (c.old, c.new) for n, c in named.items()}):
+                c = named[name]
+                rows.append(f'<tr title="{e(c.path)} {e(name)}"><td style="{CELL}">{e(where)}'
+                            f'</td><td style="{CELL}">{e(figure_label(name))}</td>'
+                            f'<td style="{NUM}">{e(format_figure(c.old, c.unit))} → '
+                            f'{e(format_figure(c.new, c.unit))}</td>'
+                            f'<td style="{NUM}">{e(format_change(c.change))}</td></tr>')
+        return rows
+
+    # ---------------------------------------------------------------- charts
     def _focus_bus(self):
-        refs = list(self.swaps) or ([self.ref.value] if self.ref.value else [])
-        for ref in refs:
-            places = self._places(ref)
-            if places:
-                return places[0][0]
+        """The bus charted: the one chosen among the position's buses."""
+        if self.chart_bus.value:
+            return self.design.bus(self.chart_bus.value)
         return self.design.buses[0] if self.design.buses else None
 
     def _chart_for(self, bus, design, label: str):
-        """The chart that says most about a bus: the pull-up window of an open-drain bus,
-        the timing budget of an SPI bus, the edge chart of a GPIO line."""
+        """The chart that says most about a bus: the pull-up window of an open-drain bus
+        (the segment of the position), the timing budget of an SPI bus, the edge chart
+        of a GPIO line."""
         if bus.protocol in ("i2c", "smbus"):
-            seg = next((s.id for s in bus.segments if any(
-                d.ref in self.swaps or d.ref == self.ref.value for d in s.devices)), None)
+            ref = self.ref.value
+            seg = next((s.id for s in bus.segments if any(d.ref == ref for d in s.devices)),
+                       None)
             w = plotdata.pullup_window_data(bus, design, seg, "sda")
             return charts.pullup_window(
                 w.cb, w.rp_min, w.rp_max, chosen_cb=w.chosen_cb, chosen_rp=w.chosen_rp,
@@ -267,11 +392,11 @@ class SwapExplorer(_Panel):
                                         status=tb.status,
                                         title=f"{label}: timing budget, {bus.id}")
         sig = next(iter(bus.lines))
-        e = plotdata.edge_vs_load_data(bus, design, sig)
-        return charts.edge_vs_load(e.loads, np.vstack(list(e.curves.values())),
-                                   series=list(e.curves),
-                                   points=e.points if len(e.points[0]) else None,
-                                   operating=(e.operating[0], e.operating[1], "far end"),
+        ed = plotdata.edge_vs_load_data(bus, design, sig)
+        return charts.edge_vs_load(ed.loads, np.vstack(list(ed.curves.values())),
+                                   series=list(ed.curves),
+                                   points=ed.points if len(ed.points[0]) else None,
+                                   operating=(ed.operating[0], ed.operating[1], "far end"),
                                    title=f"{label}: edge time against load, {bus.id} {sig}")
 
     def _draw(self) -> None:
@@ -288,13 +413,15 @@ class SwapExplorer(_Panel):
             view.draw(lambda design=design, label=label:
                       self._chart_for(design.bus(bus.id), design, label))
 
+    # ---------------------------------------------------------------- ranking
     def _rank(self) -> None:
-        """The candidates ranking of the selected position, when :mod:`pinlib.candidates`
-        is installed; otherwise the panel is hidden and a note says why."""
+        """The candidates ranking of the selected position in the design as it is now
+        (with the substitutions), when :mod:`pinlib.candidates` is installed; otherwise
+        the panel is hidden and a note says why."""
         if importlib.util.find_spec("pinlib.candidates") is None:
-            self.ranking = None
+            self.ranking = self._ranked = None
             self.candidates_box.layout.display = "none"
-            self.candidates_note.value = _note(
+            self.candidates_note.value = note(
                 "The candidates ranking needs pinlib.candidates, which this installation "
                 "does not have.")
             return
@@ -304,61 +431,72 @@ class SwapExplorer(_Panel):
         self.candidates_note.value = ""
         ref = self.ref.value
         if not ref:
-            self.ranking = None
-            self.candidates_html.value = _note("no device to rank candidates for")
+            self.ranking = self._ranked = None
+            self.candidates_html.value = note("no device to rank candidates for")
             return
-        if self.ranking is None or self.ranking.ref != ref:
+        key = (ref, tuple(sorted(self.swaps.items())))
+        if self.ranking is None or self._ranked != key:
             try:
-                self.ranking = rank_candidates(self.design, ref)
+                self.ranking = rank_candidates(self.swapped, ref)
+                self._ranked = key
             except PinlibError as err:
-                self.ranking = None
-                self.candidates_html.value = _error_html(err)
+                self.ranking = self._ranked = None
+                self.candidates_html.value = error_html(err)
                 return
-        self.candidates_html.value = self._ranking_html(self.ranking)
+        self.candidates_html.value = self._ranking_html(self.ranking, self.chart_bus.value)
 
     @staticmethod
-    def _ranking_html(r, top: int = 10) -> str:
+    def _ranking_html(r, bus: str | None = None, top: int = TOP) -> str:
+        """The best ``top`` candidates, with the figures of one bus of the position (the
+        bus charted; the first when it is not one of the ranking's)."""
         from pinlib.candidates import FIGURES
 
+        rows_of = {b["bus"]: b for b in r.buses}
+        shown = rows_of.get(bus) or (r.buses[0] if r.buses else None)
         cols = []
-        for b in r.buses:
-            family = "open-drain" if b["protocol"] in ("i2c", "smbus") else "push-pull"
-            cols += [(b["bus"], name, unit) for name, unit in FIGURES[family]]
-        multi = len(r.buses) > 1
+        if shown is not None:
+            family = "open-drain" if shown["protocol"] in ("i2c", "smbus") else "push-pull"
+            cols = [(shown["bus"], name, unit) for name, unit in FIGURES[family]]
         head = ["#", "part", "status", "worst margin", "set by"] + [
-            f"{n} ({b})" if multi else n for b, n, _ in cols]
+            short_label(n) for _, n, _ in cols]
         rows = []
         for i, c in enumerate(r.candidates[:top], 1):
             wc = c.worst_check or {}
-            by = " ".join(str(wc[k]) for k in ("bus", "segment", "line", "id", "subject")
-                          if wc.get(k)) if c.status != "error" else (c.error or "")
-            cells = [f'<td style="{_NUM}">{i}</td>',
-                     f'<td style="{_CELL}"><code>{_e(c.part)}</code>'
+            if c.status == "error":
+                by = c.error or ""
+            else:
+                by = " ".join(str(wc[k]) for k in ("bus", "segment", "line") if wc.get(k))
+                by += " " + " ".join(x for x in (check_label(str(wc["id"])) if wc.get("id")
+                                                 else "", str(wc.get("subject") or "")) if x)
+            cells = [f'<td style="{NUM}">{i}</td>',
+                     f'<td style="{CELL}"><code>{e(c.part)}</code>'
                      + (" (now)" if c.current else "") + "</td>",
-                     f'<td style="{_CELL}">{_badge(c.status)}</td>',
-                     f'<td style="{_NUM}">{_e(_margin(c.worst_margin))}</td>',
-                     f'<td style="{_CELL}">{_e(by)}</td>']
+                     f'<td style="{CELL}">{badge(c.status)}</td>',
+                     f'<td style="{NUM}">{e(margin(c.worst_margin))}</td>',
+                     f'<td style="{CELL}">{e(by.strip())}</td>']
             for b, n, unit in cols:
                 v = c.figures.get(b, {}).get(n)
-                cells.append(f'<td style="{_NUM}">'
-                             f"{_e(format_value(None if v is None else v[0], unit))}</td>")
+                cells.append(f'<td style="{NUM}">'
+                             f"{e(format_value(None if v is None else v[0], unit))}</td>")
             rows.append("<tr>" + "".join(cells) + "</tr>")
-        more = (f"<div style='font-size:11px'>{len(r.candidates) - top} more not shown</div>"
+        more = (f"<div>{len(r.candidates) - top} more not shown</div>"
                 if len(r.candidates) > top else "")
-        notes = "".join(f"<li>{_e(n)}</li>" for n in r.notes)
-        return (f'<div style="font-size:12px">Position {_e(r.ref)}, now '
-                f"<code>{_e(r.current)}</code>: {len(r.candidates)} of {r.library_size} "
+        which = (f"; figures of bus {e(shown['bus'])}" if shown is not None and
+                 len(r.buses) > 1 else "")
+        notes = "".join(f"<li>{e(n)}</li>" for n in r.notes)
+        return (f'<div style="{BLOCK};font-size:12px">Position {e(r.ref)}, now '
+                f"<code>{e(r.current)}</code>: {len(r.candidates)} of {r.library_size} "
                 f"placeable parts can serve it ({r.excluded} cannot: pin functions or "
-                "drives)</div>"
-                '<table style="border-collapse:collapse;font-size:12px;margin:4px 0"><tr>'
-                + "".join(f'<th style="{_HEAD}">{_e(h)}</th>' for h in head) + "</tr>"
-                + "".join(rows) + "</table>" + more
-                + (f'<ul style="font-size:11px">{notes}</ul>' if notes else ""))
+                f"drives){which}</div>"
+                f'<table style="{TABLE}"><tr>'
+                + "".join(f'<th style="{HEAD}">{e(h)}</th>' for h in head) + "</tr>"
+                + "".join(rows) + "</table>" + block(more, size=11)
+                + (f'<ul style="{BLOCK};font-size:11px">{notes}</ul>' if notes else ""))
 
     def static_view(self) -> StaticView:
         """The change list, charts and checks as plain HTML, for exported pages."""
         ranking = self.candidates_html.value if self.ranking is not None else \
             self.candidates_note.value
-        return StaticView(_caution_html() + self.status_html.value + self.swaps_html.value
+        return StaticView(caution_html() + self.status_html.value + self.swaps_html.value
                           + self.changes_html.value + self.before.html() + self.after.html()
                           + ranking + self.checks_html.value)

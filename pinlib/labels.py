@@ -1,0 +1,194 @@
+"""Readable names for the ids of figures and checks, for tables that people read.
+
+A result keeps stable ids (``rp_min``, ``noise_margin_low``, ``rise-time``): they are keys
+of the result JSON and of the tests.  A table shows :func:`figure_label` /
+:func:`check_label` instead ("Rp(min)", "Noise margin, low", "Rise time") beside the value
+with its unit.  :func:`shown_figures` drops the figures that repeat another one, so a
+reader sees each number once under a clear name:
+
+* ``X_sda`` and ``X_scl`` are the two lines of an open-drain bus and ``X`` the worse of
+  them; when both lines give the same value only ``X`` is shown, otherwise the two lines
+  are shown and ``X`` (one of them again) is not;
+* ``pullup`` is the effective pull-up of a line (the resistor in parallel with the
+  pull-ups inside parts) and ``pullup_resistor`` the part fitted: when no part adds a
+  pull-up they are one number, shown once as the resistor.
+
+Nothing here imports a widget, a chart or an engine: the widgets use it, and the text and
+HTML reports can.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Mapping
+from typing import Any
+
+__all__ = ["FIGURES", "SHORT", "CHECKS", "figure_label", "short_label", "check_label",
+           "shown_figures", "humanize"]
+
+#: Figure id -> label, in the order a table lists them (units come with the values).
+FIGURES: dict[str, str] = {
+    # open-drain buses (I2C, SMBus), per segment
+    "supply": "Supply",
+    "pullup_resistor": "Pull-up resistor",
+    "pullup": "Pull-up, effective (with pull-ups inside parts)",
+    "rp_min": "Rp(min)",
+    "rp_max": "Rp(max)",
+    "bus_capacitance": "Bus capacitance Cb",
+    "rise_time": "Rise time tr",
+    "rise_time_10_90": "Rise time, 10–90 %",
+    "fall_time": "Fall time tf",
+    "rise_factor": "Rise factor k (tr = k·Rp·Cb)",
+    "v_ol": "Low level VOL",
+    "v_oh": "High level VOH",
+    "noise_margin_low": "Noise margin, low",
+    "noise_margin_high": "Noise margin, high",
+    "pullup_power": "Pull-up power",
+    "scl_frequency_effective": "SCL frequency, effective",
+    "sda_setup_margin": "SDA setup margin",
+    # SPI buses
+    "max_clock": "Highest clock",
+    "copi_setup_margin": "COPI setup margin",
+    "copi_hold_margin": "COPI hold margin",
+    "cipo_setup_margin": "CIPO setup margin",
+    "cipo_hold_margin": "CIPO hold margin",
+    "cs_setup_margin": "CS setup margin",
+    # push-pull lines
+    "load_capacitance": "Load capacitance",
+    "trace_delay": "Trace delay td",
+    "z0": "Z0",
+    "edge_rise_time": "Edge rise time, far end",
+    "edge_fall_time": "Edge fall time, far end",
+    "series_resistor": "Series resistor Rs",
+    "overshoot": "Overshoot",
+    "undershoot": "Undershoot",
+    "transmission_line": "Transmission line",
+    "model": "Line model",
+    "delay_to_edge_ratio": "Delay / edge time",
+}
+
+#: Figure id -> a short label for a table's column head (symbols of the trade).
+SHORT: dict[str, str] = {
+    "bus_capacitance": "Cb",
+    "rise_time": "tr",
+    "fall_time": "tf",
+    "v_ol": "VOL",
+    "v_oh": "VOH",
+    "pullup_resistor": "Rp",
+    "pullup": "Rp, effective",
+    "max_clock": "f(max)",
+    "load_capacitance": "C load",
+    "series_resistor": "Rs",
+}
+
+#: Check id -> label, where the plain words of the id would read badly.
+CHECKS: dict[str, str] = {
+    "f-max": "Clock ≤ f(max)",
+    "v-ol": "VOL",
+    "v-oh": "VOH",
+    "pullup-window": "Pull-up window Rp(min)…Rp(max)",
+    "scl-frequency": "SCL frequency",
+    "edge-time": "Edge time",
+    "bridge-gate-drive": "Translator gate drive",
+}
+
+#: Words written in capitals (or as the trade writes them) wherever they appear in an id.
+_WORDS = {
+    "sda": "SDA", "scl": "SCL", "sclk": "SCLK", "copi": "COPI", "cipo": "CIPO", "cs": "CS",
+    "spi": "SPI", "i2c": "I2C", "smbus": "SMBus", "gpio": "GPIO", "vil": "VIL", "vih": "VIH",
+    "vol": "VOL", "voh": "VOH", "ol": "OL", "oh": "OH", "rp": "Rp", "cb": "Cb", "z0": "Z0",
+    "rs": "Rs", "tr": "tr", "tf": "tf", "vdd": "VDD",
+}
+
+#: The lines of an open-drain bus, as figure id suffixes.
+_LINES = ("sda", "scl")
+
+
+def humanize(ident: str) -> str:
+    """An id in plain words: ``"noise_margin_low"`` -> ``"Noise margin low"``."""
+    words = [w for w in ident.replace("-", "_").split("_") if w]
+    if not words:
+        return ident
+    joined: list[str] = []  # v_ol -> VOL, i_oh -> IOH: levels and currents of a pin
+    for w in words:
+        if joined and joined[-1].lower() in ("v", "i") and w.lower() in ("ol", "oh", "il", "ih"):
+            joined[-1] = (joined[-1] + w).upper()
+        else:
+            joined.append(w)
+    words = joined
+    out = [_WORDS.get(w.lower(), w) for w in words]
+    if out[0] == words[0]:
+        out[0] = out[0][:1].upper() + out[0][1:]
+    return " ".join(out)
+
+
+def _split_line(name: str) -> tuple[str, str | None]:
+    for line in _LINES:
+        if name.endswith("_" + line):
+            return name[: -len(line) - 1], line
+    return name, None
+
+
+def figure_label(name: str) -> str:
+    """A figure's label: ``rp_min`` -> ``"Rp(min)"``, ``rise_time_sda`` -> ``"Rise time tr,
+    SDA"``; an id without an entry in :data:`FIGURES` in plain words."""
+    if name in FIGURES:
+        return FIGURES[name]
+    base, line = _split_line(name)
+    if line is not None and base in FIGURES:
+        return f"{FIGURES[base]}, {line.upper()}"
+    return humanize(name)
+
+
+def short_label(name: str) -> str:
+    """A figure's short label for a column head (``"Cb"``, ``"tr"``); its full label when
+    it has none."""
+    base, line = _split_line(name)
+    if base in SHORT:
+        return SHORT[base] + (f" {line.upper()}" if line else "")
+    return figure_label(name)
+
+
+def check_label(check_id: str) -> str:
+    """A check's label: ``"noise-margin-low"`` -> ``"Noise margin low"``,
+    ``"f-max"`` -> ``"Clock ≤ f(max)"``."""
+    return CHECKS.get(check_id) or humanize(check_id)
+
+
+def _order(name: str) -> tuple[int, int]:
+    base, line = _split_line(name)
+    keys = list(FIGURES)
+    rank = keys.index(base) if base in keys else len(keys)
+    return rank, 0 if line is None else 1 + _LINES.index(line)
+
+
+def shown_figures(values: Mapping[str, Any],
+                  same: Callable[[Any, Any], bool] | None = None) -> list[str]:
+    """The figure names to show, in table order, without the ones that repeat another.
+
+    Parameters
+    ----------
+    values : mapping of str to anything
+        Figure name -> what is compared (a value, a Figure, a (before, after) pair).
+    same : callable, optional
+        Whether two entries are the same number; ``==`` by default.
+
+    Returns
+    -------
+    list of str
+        The names kept (see the module's description of the rules).
+    """
+    eq = same or (lambda a, b: a == b)
+    drop = set()
+    for name in values:
+        base, line = _split_line(name)
+        if line is None or base not in values:
+            continue
+        lines = [f"{base}_{x}" for x in _LINES if f"{base}_{x}" in values]
+        if all(eq(values[x], values[base]) for x in lines):
+            drop.update(lines)
+        else:
+            drop.add(base)
+    if "pullup" in values and "pullup_resistor" in values and "pullup" not in drop \
+            and eq(values["pullup"], values["pullup_resistor"]):
+        drop.add("pullup")
+    return sorted((n for n in values if n not in drop), key=_order)

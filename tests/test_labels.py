@@ -1,0 +1,85 @@
+"""Tests of pinlib.labels: readable names of figure and check ids, each figure shown once.
+
+The rules are checked on figures the engines return for the demo design and for made-up
+values where the lines of a bus differ.
+"""
+
+from __future__ import annotations
+
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from pinlib.check import check_file
+from pinlib.labels import FIGURES, check_label, figure_label, humanize, short_label, shown_figures
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"
+
+
+def test_labels_of_figures_and_checks():
+    assert figure_label("rp_min") == "Rp(min)"
+    assert figure_label("noise_margin_low") == "Noise margin, low"
+    assert figure_label("rise_time_sda") == "Rise time tr, SDA"
+    assert figure_label("pullup_scl").endswith(", SCL")
+    assert figure_label("some_new_figure") == "Some new figure"
+    assert check_label("noise-margin-low") == "Noise margin low"
+    assert check_label("copi-setup") == "COPI setup"
+    assert check_label("f-max") == "Clock ≤ f(max)"
+    assert humanize("v_ol_sda") == "VOL SDA"
+    assert short_label("bus_capacitance") == "Cb" and short_label("rp_min") == "Rp(min)"
+
+
+def test_every_figure_of_the_demo_has_a_label_of_its_own():
+    result = check_file(DEMO)
+    names = set()
+    for bus in result.buses:
+        for group in [bus, *bus.segments, *bus.lines]:
+            names |= set(group.figures)
+    bases = {n.removesuffix("_sda").removesuffix("_scl") for n in names}
+    assert bases <= set(FIGURES), sorted(bases - set(FIGURES))
+    labels = [figure_label(n) for n in names]
+    assert len(set(labels)) == len(labels)
+
+
+def test_the_demo_shows_each_number_once():
+    seg = check_file(DEMO).bus("sensors").segments[0]
+    values = {n: f.value for n, f in seg.figures.items()}
+    shown = shown_figures(values)
+    # no part on this segment adds a pull-up: the resistor is the effective pull-up
+    assert values["pullup"] == values["pullup_resistor"]
+    assert "pullup_resistor" in shown and "pullup" not in shown
+    assert not any(n.startswith("pullup_s") for n in shown)
+    # both lines carry the same capacitance here: one row
+    assert values["bus_capacitance_sda"] == values["bus_capacitance_scl"]
+    assert "bus_capacitance" in shown and "bus_capacitance_sda" not in shown
+    # table order follows FIGURES
+    order = list(FIGURES)
+    assert [n for n in shown if n in order] == sorted(
+        (n for n in shown if n in order), key=order.index)
+
+
+@pytest.mark.parametrize("values, kept", [
+    # the lines differ: each line shown, the worse-of copy not
+    ({"fall_time": 3.0, "fall_time_sda": 3.0, "fall_time_scl": 2.0},
+     ["fall_time_sda", "fall_time_scl"]),
+    # a part adds its own pull-up: the resistor and the effective value both shown
+    ({"pullup": 2.0, "pullup_resistor": 4.7, "pullup_sda": 2.0, "pullup_scl": 2.0},
+     ["pullup_resistor", "pullup"]),
+    # pairs (before, after) as a change list compares them
+    ({"rise_time": (1, 2), "rise_time_sda": (1, 2), "rise_time_scl": (1, 2)},
+     ["rise_time"]),
+])
+def test_shown_figures_rules(values, kept):
+    assert shown_figures(values) == kept
+
+
+def test_labels_import_no_widget_or_chart():
+    code = ("import sys, pinlib.labels; "
+            "bad = [m for m in ('ipywidgets', 'altair', 'pinlib.widgets', 'pinlib.charts') "
+            "if m in sys.modules]; print(bad); sys.exit(1 if bad else 0)")
+    run = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         timeout=60)
+    assert run.returncode == 0, run.stdout + run.stderr
