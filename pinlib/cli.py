@@ -18,7 +18,7 @@ from pinlib.errors import PinlibError
 __all__ = ["main", "COMMANDS"]
 
 #: Subcommand modules under pinlib.commands, in the order --help lists them.
-COMMANDS = ["check", "report", "swap", "candidates", "parts", "demo"]
+COMMANDS = ["check", "report", "swap", "candidates", "parts", "demo", "workbench"]
 
 EPILOG = """\
 examples:

@@ -337,6 +337,16 @@ DEMO_FILES_MISSING = "the demo files are not part of this installation of pinlib
 DEMO_WOULD_OVERWRITE = "the folder already holds {n} of the demo's files ({names})"
 DEMO_FORCE_HINT = "--force overwrites them, or name another folder"
 
+# ---------------------------------------------------------------- command workbench
+NO_WORKBOOKS_IN_FOLDER = "no workbooks (*.ipynb) in the folder or in its workbooks/ folder"
+WORKBOOKS_DEMO_HINT = "pinlib demo {folder} copies them there"
+NOT_A_PORT = "not a port number"
+PORT_IN_USE = "the port is in use on 127.0.0.1"
+OTHER_PORT_HINT = "choose another with --port N"
+SERVER_STOPPED = "the web server stopped (exit status {code})"
+SERVER_DID_NOT_ANSWER = "the web server did not answer within {seconds:g} s"
+SERVER_OUTPUT_HINT = "its own messages are above"
+
 #: The modules whose raise sites, warnings and report sentences take their texts from here.
 MODULES = (
     "pinlib.tomlfile",
@@ -380,6 +390,7 @@ MODULES = (
     "pinlib.commands.report",
     "pinlib.commands.candidates",
     "pinlib.commands.demo",
+    "pinlib.commands.workbench",
     "pinlib.extras",
 )
 

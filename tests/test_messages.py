@@ -1834,6 +1834,87 @@ def _(env):
     return _demo_twice(env)
 
 
+# ---------------------------------------------------------------- command workbench
+@case("NO_WORKBOOKS_IN_FOLDER")
+def _(env):
+    (env.tmp / "empty").mkdir()
+    return env.cli("workbench", str(env.tmp / "empty"))
+
+
+@case("WORKBOOKS_DEMO_HINT", lambda: M.WORKBOOKS_DEMO_HINT.format(folder="empty"))
+def _(env):
+    (env.tmp / "empty").mkdir()
+    env.monkeypatch.chdir(env.tmp)
+    return env.cli("workbench", "empty")
+
+
+def _workbooks(env):
+    (env.tmp / "workbooks").mkdir()
+    (env.tmp / "workbooks" / "a.ipynb").write_text("{}", encoding="utf-8")
+    return str(env.tmp)
+
+
+@case("NOT_A_PORT")
+def _(env):
+    return env.cli("workbench", "--port", "70000", _workbooks(env))
+
+
+def _port_taken(env):
+    import socket
+
+    s = socket.socket()
+    s.bind(("127.0.0.1", 0))
+    s.listen()
+    try:
+        return env.cli("workbench", "--port", str(s.getsockname()[1]), _workbooks(env))
+    finally:
+        s.close()
+
+
+@case("PORT_IN_USE")
+def _(env):
+    return _port_taken(env)
+
+
+@case("OTHER_PORT_HINT")
+def _(env):
+    return _port_taken(env)
+
+
+def _server_exits(env):
+    import sys
+
+    from pinlib.commands import workbench
+
+    # a server that stops at once (status 3), as Voila does on a bad option
+    env.monkeypatch.setattr(workbench, "voila_command",
+                            lambda folder, port: [sys.executable, "-c", "raise SystemExit(3)"])
+    return env.cli("workbench", _workbooks(env))
+
+
+@case("SERVER_STOPPED", M.SERVER_STOPPED.format(code=3))
+def _(env):
+    return _server_exits(env)
+
+
+@case("SERVER_OUTPUT_HINT")
+def _(env):
+    return _server_exits(env)
+
+
+@case("SERVER_DID_NOT_ANSWER", M.SERVER_DID_NOT_ANSWER.format(seconds=0.5))
+def _(env):
+    import sys
+
+    from pinlib.commands import workbench
+
+    # a server that never answers (it is stopped when the command gives up)
+    env.monkeypatch.setattr(workbench, "START_TIMEOUT", 0.5)
+    env.monkeypatch.setattr(workbench, "voila_command", lambda folder, port: [
+        sys.executable, "-c", "import time; time.sleep(60)"])
+    return env.cli("workbench", _workbooks(env))
+
+
 @pytest.mark.parametrize(("name", "expected", "trigger"), CASES)
 def test_message(name, expected, trigger, tmp_path, monkeypatch, capsys):
     text = getattr(M, name)
