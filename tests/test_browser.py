@@ -1,0 +1,360 @@
+"""The workbooks as a user meets them: JupyterLab in headless Chromium at 1400 × 900.
+
+One JupyterLab (127.0.0.1, no token, a temporary folder holding a copy of the workbooks
+and their designs) and one Chromium serve the whole session.  Each workbook is opened
+with the file browser side panel open and run with Run All; then, at 1400 × 900:
+
+* every labelled control is shown with a non-zero size (those on a tab that is not
+  selected excepted), and the controls the issue named are there;
+* no widget box scrolls or clips sideways, nothing ends past the notebook's right edge,
+  no label, value or choice is cut, toggle buttons stay on one row, and focusing a
+  field scrolls nothing sideways;
+* no text of a chart (SVG) ends past the chart's edge, overprints another or says
+  ``undefined``/``NaN``;
+* no cell shows an error, a traceback or a widget's text repr, and no widget shows an
+  error right after Run All (unless its first words say it is a demonstration);
+* changing one control changes a chart (workbook 04 has no chart: its second tab's
+  controls show once the tab is chosen);
+* a bad quantity typed into a field shows an error beside that field, the field keeps
+  what was typed, and the charts and tables stay as they were;
+* no request leaves 127.0.0.1 (each is aborted and recorded).
+
+``pinlib workbench`` (Voilà) is driven the same way for workbook 01.  Screenshots go to
+``out/browser/`` for a reviewer.  With ``PINLIB_README_SHOT=1`` the screenshot of
+workbook 01 is also written to ``docs/img/workbook-01.png`` (the README's).
+
+Where Chromium or Playwright is missing the tests skip, except on CI (``CI`` set),
+where they fail.
+"""
+
+from __future__ import annotations
+
+import os
+import shutil
+import signal
+import sys
+import time
+from dataclasses import dataclass
+
+import pytest
+from browser import (
+    OUT,
+    ROOT,
+    LoopbackGuard,
+    Server,
+    Workbook,
+    chromium_path,
+    copy_workbooks,
+    free_port,
+    in_ci,
+    jupyter_env,
+    label_matches,
+    launch_chromium,
+    near,
+    new_context,
+    start_lab,
+)
+
+pytestmark = pytest.mark.browser
+
+README_SHOT = ROOT / "docs" / "img" / "workbook-01.png"
+
+
+def _need_browser():
+    why = None
+    if chromium_path() is None:
+        why = "chromium is not installed"
+    else:
+        try:
+            import playwright.sync_api  # noqa: F401
+        except ImportError:
+            why = "the playwright package is not installed (the test extra)"
+    if why is None:
+        return
+    if in_ci():
+        pytest.fail(f"{why}: on CI the browser tests must run (.ci/run installs chromium)")
+    pytest.skip(why)
+
+
+# =========================================================================== what each
+# workbook is asked
+
+
+@dataclass(frozen=True)
+class Spec:
+    name: str
+    #: labels that must be on screen (the issue's lists of the controls a user lost)
+    required: tuple[str, ...]
+    #: (label, option or None for the next) chosen to change a chart; ("tab", title) for 04
+    change: tuple[str, str | None]
+    #: bad quantities: (label, text typed, button clicked afterwards or None)
+    bad: tuple[tuple[str, str, str | None], ...]
+    #: labels of controls hidden on purpose
+    may_hide: tuple[str, ...] = ()
+    #: typed before the bad quantities (a form that needs another field first)
+    before_bad: tuple[tuple[str, str], ...] = ()
+    #: a tab to choose before the bad quantities
+    bad_tab: str | None = None
+
+
+#: the per-length trace values, shown for a trace given per length only
+_PER_LENGTH = ("C per length", "Delay per length", "C (pF/cm)", "Delay (ps/cm)")
+
+SPECS = [
+    Spec("01-start-a-design.ipynb",
+         required=("Title", "Mode", "Supply", "Controller", "Peripheral", "Trace", "Length",
+                   "Extra C", "Rp", "Rise", "Probe", "Save as"),
+         change=("Mode", "standard"),
+         bad=(("Supply", "4.7 kohms", None), ("Supply", "-3.3", None)),
+         may_hide=_PER_LENGTH),
+    Spec("02-push-pull-line.ipynb",
+         required=("Driver", "Output pin", "Supply", "Receiver", "Trace", "Length", "Rs"),
+         change=("Trace", None),
+         bad=(("Length", "-5 cm", None),),
+         may_hide=_PER_LENGTH),
+    Spec("03-spi-timing.ipynb",
+         required=("Bus", "Clock", "SPI mode"),
+         change=("Bus", None),
+         bad=(("Clock", "abc", None),)),
+    Spec("04-record-part-values.ipynb",
+         required=("New id", "Extends", "Title", "Basis", "Source", "Create the part"),
+         change=("tab", "Record a value"),
+         before_bad=(("Field", "sda.c_in"),),
+         bad=(("Value", "15", None),),
+         bad_tab="Record a value"),
+    Spec("05-rerun-after-substitution.ipynb",
+         required=("Design", "Load", "Device", "Put there", "Apply", "Reset"),
+         change=("Device", "U7"),
+         bad=(("Design", "no-such-board.toml", "Load"),)),
+]
+
+
+# =========================================================================== fixtures
+
+
+@pytest.fixture(scope="session")
+def lab(tmp_path_factory):
+    """JupyterLab on 127.0.0.1 serving a copy of the workbooks: (base URL, folder)."""
+    _need_browser()
+    tmp = tmp_path_factory.mktemp("lab")
+    folder = copy_workbooks(tmp / "files")
+    server, base = start_lab(folder, tmp / "jupyter")
+    try:
+        yield base, folder
+    finally:
+        server.stop()
+
+
+@pytest.fixture(scope="session")
+def chromium():
+    """One headless Chromium for the session and the guard of its requests."""
+    _need_browser()
+    from playwright.sync_api import sync_playwright
+
+    guard = LoopbackGuard()
+    with sync_playwright() as pw:
+        browser = launch_chromium(pw)
+        try:
+            yield browser, guard
+        finally:
+            browser.close()
+
+
+_TIMES: dict[str, dict[str, float]] = {}
+
+
+@pytest.fixture(scope="session", autouse=False)
+def timings():
+    yield _TIMES
+    if _TIMES:
+        OUT.mkdir(parents=True, exist_ok=True)
+        lines = [f"{k}: " + ", ".join(f"{n} {v:.1f} s" for n, v in t.items())
+                 for k, t in _TIMES.items()]
+        (OUT / "timings.txt").write_text("\n".join(lines) + "\n", encoding="utf-8")
+
+
+@pytest.fixture(scope="module", params=SPECS, ids=lambda s: s.name[:2])
+def wb(request, lab, chromium, timings):
+    """The workbook of ``request.param`` open in JupyterLab after Run All."""
+    base, _ = lab
+    browser, guard = chromium
+    spec: Spec = request.param
+    t0 = time.perf_counter()
+    guard.where = spec.name
+    context = new_context(browser, guard)
+    page = context.new_page()
+    book = Workbook(page, spec.name)
+    book.spec = spec
+    try:
+        book.open_in_lab(base)
+        book.file_browser = book.file_browser_open()
+        book.ran = book.run_all()
+        book.scroll_to_widgets()
+        book.shot = book.screenshot()
+        if spec.name.startswith("01") and os.environ.get("PINLIB_README_SHOT"):
+            README_SHOT.parent.mkdir(parents=True, exist_ok=True)
+            shutil.copyfile(book.shot, README_SHOT)
+        yield book
+    finally:
+        book.shutdown_kernel()
+        context.close()
+        book.timings["total"] = time.perf_counter() - t0
+        timings[spec.name] = book.timings
+
+
+# =========================================================================== the tests
+
+
+def test_run_all_runs_every_cell_with_the_file_browser_open(wb):
+    assert wb.file_browser, "the file browser side panel is not open"
+    assert wb.ran, "Run All stopped at a cell"
+    assert wb.shot.stat().st_size > 10_000
+
+
+def test_every_labelled_control_is_shown(wb):
+    spec: Spec = wb.spec
+    controls = wb.controls()
+    labelled = [c for c in controls if c["label"]]
+    assert labelled, "no labelled control on the page"
+    hidden = [f'"{c["label"]}" ({c["kind"]}, display {c["display"]}, '
+              f'{c["box"]["w"]}x{c["box"]["h"]} px)'
+              for c in labelled
+              if not c["shown"] and not c["inHiddenTab"]
+              and not any(label_matches(c["label"], x) for x in spec.may_hide)]
+    # each named control is there: on screen, or on a tab that is not selected
+    missing = [want for want in spec.required
+               if not any(label_matches(c["label"], want, prefix=True)
+                          and (c["shown"] or c["inHiddenTab"]) for c in labelled)]
+    assert not hidden and not missing, (
+        f"{len(hidden)} of {len(labelled)} labelled controls are not shown: {hidden}; "
+        f"named controls not on screen: {missing}")
+
+
+def test_nothing_scrolls_or_is_cut_sideways(wb):
+    problems = wb.sideways_problems()
+    assert not problems, f"{len(problems)} problems:\n  " + "\n  ".join(problems)
+
+
+def test_chart_text_stays_inside_its_chart(wb):
+    found = wb.svg_text()
+    if not wb.spec.name.startswith("04"):  # 04 records values; it draws no chart
+        assert found["charts"] > 0, "no chart on the page"
+    problems = found["problems"]
+    assert not problems, f"{len(problems)} problems:\n  " + "\n  ".join(problems)
+
+
+def test_no_cell_shows_an_error_or_a_text_repr(wb):
+    problems = wb.error_outputs()
+    marks = [m["text"] for m in wb.error_marks() if not m["inDemo"]]
+    assert not problems and not marks, (
+        f"outputs: {problems}; errors shown in the widgets right after Run All: {marks}")
+
+
+def test_changing_a_control_changes_the_chart(wb):
+    spec: Spec = wb.spec
+    what, option = spec.change
+    if what == "tab":
+        # 04 draws no chart: choosing the second form's tab shows its controls
+        wb.select_tab(option)
+        wb.settle()
+        wb.screenshot("changed")
+        hidden = [c["label"] for c in wb.controls()
+                  if c["label"] and not c["shown"] and not c["inHiddenTab"]]
+        shown = [c["label"] for c in wb.controls() if c["shown"]]
+        assert not hidden, f"controls not shown on the tab {option!r}: {hidden}"
+        assert any(label_matches(x, "Value", prefix=True) for x in shown), shown
+        return
+    before = wb.figures()
+    errors = wb.error_outputs()
+    assert before["charts"], "no chart in the widget"
+    chosen = wb.choose(what, option)
+    changed = wb.js("chart_change_time", before=before["charts"], timeout=30_000)
+    wb.settle()
+    wb.screenshot("changed")
+    assert changed is not None, f"choosing {chosen!r} in {what!r} left every chart as it was"
+    new = [e for e in wb.error_outputs() if e not in errors]
+    assert new == [], f"choosing {chosen!r} in {what!r}: {new}"
+
+
+def test_a_bad_quantity_shows_an_error_beside_its_field(wb):
+    spec: Spec = wb.spec
+    if spec.bad_tab:
+        wb.select_tab(spec.bad_tab)
+    for label, text in spec.before_bad:
+        wb.type_into(label, text)
+        wb.settle()
+    failures = []
+    for n, (label, text, button) in enumerate(spec.bad, 1):
+        before = wb.figures()
+        marks_before = {m["text"] for m in wb.error_marks() if m["shown"]}
+        wb.type_into(label, text)
+        if button:
+            wb.click_button(button)
+        wb.settle()
+        loc, info = wb.control(label)  # where the field is now (the page may have scrolled)
+        shown = wb.shown_text(loc, info)
+        after = wb.figures()
+        marks = [m for m in wb.error_marks() if m["shown"]]
+        beside = [m for m in marks if near(m, info)]
+        wb.screenshot(f"bad-{n}")
+        what = f"{label!r} <- {text!r}"
+        if not beside:
+            elsewhere = [m["text"] for m in marks if m["text"] not in marks_before]
+            failures.append(f"{what}: no error beside the field"
+                            + (f" (shown elsewhere: {elsewhere})" if elsewhere else ""))
+        if shown.strip() != text:
+            failures.append(f"{what}: the field now shows {shown!r}, not what was typed")
+        if after != before:
+            failures.append(f"{what}: the charts or tables changed")
+    assert not failures, "\n  ".join(["bad quantities:"] + failures)
+
+
+def test_no_request_leaves_loopback(wb, chromium):
+    _, guard = chromium
+    mine = [url for where, url in guard.attempts if where == wb.spec.name]
+    assert mine == [], f"requests beyond 127.0.0.1 (aborted): {mine}"
+
+
+# =========================================================================== workbench
+
+
+def test_workbench_serves_workbook_01_without_code(lab, chromium, tmp_path):
+    """``pinlib workbench FOLDER`` (Voilà): the workbook's controls without its code, a
+    control that changes the chart, the URL printed, Ctrl-C stopping it cleanly."""
+    _, folder = lab
+    browser, guard = chromium
+    port = free_port()
+    server = Server([sys.executable, "-m", "pinlib", "workbench", "--port", str(port),
+                     str(folder.parent)],
+                    f"http://127.0.0.1:{port}/", tmp_path / "workbench.log",
+                    env=jupyter_env(tmp_path / "jupyter"))
+    server.start()
+    guard.where = "workbench"
+    context = new_context(browser, guard)
+    try:
+        page = context.new_page()
+        book = Workbook(page, "01-start-a-design.ipynb", lab=False)
+        book.open_in_voila(f"http://127.0.0.1:{port}/voila/render/01-start-a-design.ipynb")
+        book.scroll_to_widgets()
+        book.screenshot("workbench")
+        assert page.locator(".jp-InputArea-editor, .CodeMirror, .cm-editor").count() == 0, \
+            "code cells are shown"
+        controls = [c for c in book.controls() if c["label"]]
+        for want in ("Mode", "Supply", "Controller", "Length"):
+            assert any(label_matches(c["label"], want, prefix=True) and c["shown"]
+                       for c in controls), \
+                f"{want!r} is not shown; shown: {[c['label'] for c in controls if c['shown']]}"
+        before = book.figures()
+        assert before["charts"], "no chart"
+        book.choose("Mode", "standard")
+        changed = book.js("chart_change_time", before=before["charts"], timeout=30_000)
+        book.screenshot("workbench-changed")
+        assert changed is not None, "choosing a mode left the chart as it was"
+        assert [u for w, u in guard.attempts if w == "workbench"] == []
+    finally:
+        context.close()
+        code = server.stop(signal.SIGINT, timeout=20)
+    out = server.output()
+    assert f"http://127.0.0.1:{port}/" in out
+    assert "Traceback" not in out, out[-2000:]
+    assert code == 0, out[-2000:]
