@@ -288,6 +288,11 @@ def _label_of(options, value) -> str:
     return str(value)
 
 
+def _name(options, value) -> str:
+    """A value as a note names it: itself when it is a plain id, else its label."""
+    return str(value) if isinstance(value, (str, int, float)) else _label_of(options, value)
+
+
 def set_options(dropdown, options, keep, *, what: str = "", said: W.HTML | None = None,
                 unfit: Callable[[object], str] | None = None) -> None:
     """Give a dropdown new options without changing its value unannounced.
@@ -320,8 +325,8 @@ def set_options(dropdown, options, keep, *, what: str = "", said: W.HTML | None 
         dropdown.options = options
         if values:
             dropdown.value = values[0]
-            message = (f"{e(what)} <b>{e(_label_of(old, keep))}</b> is not offered here: "
-                       f"now <b>{e(_label_of(options, values[0]))}</b>.")
+            message = (f"{e(what)} <b>{e(_name(old, keep))}</b> is not offered here: now "
+                       f"<b>{e(_name(options, values[0]))}</b>.")
         else:
             message = f"no {e(what.lower() or 'choice')} is offered here."
     if said is not None:
