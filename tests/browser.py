@@ -322,6 +322,14 @@ function widgetRoots(scope) {
   return [...scope.querySelectorAll('.jupyter-widgets')].filter(
     el => !(el.parentElement && el.parentElement.closest('.jupyter-widgets')));
 }
+function kernelBusy() {
+  const app = window.jupyterapp;
+  if (!app) return false;
+  const w = app.shell.currentWidget;
+  const k = w && w.sessionContext && w.sessionContext.session &&
+            w.sessionContext.session.kernel;
+  return !k || k.status !== 'idle';
+}
 function hash(s) {
   let h = 2166136261;
   for (let i = 0; i < s.length; i++) { h ^= s.charCodeAt(i); h = Math.imul(h, 16777619); }
@@ -585,17 +593,9 @@ _JS = {
       const obs = new MutationObserver(() => { last = performance.now(); });
       obs.observe(scope, {subtree: true, childList: true, attributes: true,
                           characterData: true});
-      const busy = () => {
-        const app = window.jupyterapp;
-        if (!app) return false;
-        const w = app.shell.currentWidget;
-        const k = w && w.sessionContext && w.sessionContext.session &&
-                  w.sessionContext.session.kernel;
-        return !k || k.status !== 'idle';
-      };
       const tick = () => {
         const now = performance.now();
-        if (busy()) last = now;
+        if (kernelBusy()) last = now;
         if (now - last >= arg.quiet || now - started > arg.timeout) {
           obs.disconnect();
           resolve(now - started <= arg.timeout);
@@ -621,6 +621,47 @@ _JS = {
       obs.observe(scope, {subtree: true, childList: true, characterData: true});
       setTimeout(() => { obs.disconnect(); resolve(check() ? performance.now() - t0 : null); },
                  arg.timeout);
+    })""",
+    # choose option `index` of the tagged dropdown as a user does (the change event);
+    # ms from that event to the first and to the last change of an SVG under the widgets
+    # and to the last change of the page (once the kernel is idle and the page still for
+    # `quiet` ms), or null
+    "timed_choice": """(arg) => new Promise(resolve => {
+      const scope = scopeOf(arg);
+      const select = document.querySelector(`[data-pinlib-test="${arg.tag}"] select`);
+      const charts = () => {
+        const now = [];
+        for (const root of widgetRoots(scope))
+          for (const svg of root.querySelectorAll('svg'))
+            if (!svg.parentElement.closest('svg')) now.push(hash(svg.outerHTML));
+        return JSON.stringify(now);
+      };
+      let shown = charts(), first = null, last = null, done = null;
+      let moved = performance.now();
+      const obs = new MutationObserver(() => {
+        moved = performance.now();
+        done = moved - t0;
+        const now = charts();
+        if (now !== shown) {
+          shown = now;
+          last = moved - t0;
+          if (first === null) first = last;
+        }
+      });
+      obs.observe(scope, {subtree: true, childList: true, characterData: true});
+      const t0 = performance.now();
+      const tick = () => {
+        const now = performance.now();
+        if (kernelBusy()) moved = now;
+        const still = first !== null && now - moved >= arg.quiet;
+        if (still || now - t0 > arg.timeout) {
+          obs.disconnect();
+          resolve(first === null ? null : {first, last, done});
+        } else setTimeout(tick, 20);
+      };
+      select.selectedIndex = arg.index;
+      select.dispatchEvent(new Event('change', {bubbles: true}));
+      setTimeout(tick, 20);
     })""",
 }
 
@@ -834,6 +875,28 @@ class Workbook:
         else:
             select.select_option(index=index)
         return texts[index]
+
+    def options(self, label: str) -> list[str]:
+        """The option texts of the dropdown labelled ``label``."""
+        loc, _ = self._found(label)
+        return [t.strip() for t in loc.locator("select option").all_inner_texts()]
+
+    def time_choice(self, label: str, index: int, timeout: float = 30.0):
+        """Choose option ``index`` of the dropdown labelled ``label``: seconds from the
+        change event to the first and to the last chart that differs and to the page's
+        last change, as ``(first, last, done)``; None when no chart changed within
+        ``timeout``."""
+        self._found(label)
+        got = self.js("timed_choice", tag=f"c{self._tag}", index=index, quiet=300,
+                      timeout=timeout * 1e3)
+        return None if got is None else (got["first"] / 1e3, got["last"] / 1e3,
+                                         got["done"] / 1e3)
+
+    def _found(self, label: str):
+        found = self.control(label)
+        if found is None:
+            raise LookupError(f"no control labelled {label!r}; labels: {self.labels()}")
+        return found
 
     def click_button(self, label: str) -> None:
         found = self.control(label)

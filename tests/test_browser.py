@@ -202,6 +202,139 @@ def wb(request, lab, chromium, timings):
         timings[spec.name] = book.timings
 
 
+# =========================================================================== the detectors
+
+# A page built like a workbook's output (ipywidgets' classes), with one of each problem
+# the tests look for; the same page without them is the control.
+_FAIL = "rgb(213, 94, 0)"
+_PAGE = """<!doctype html><html><body style="margin:0;font:13px sans-serif">
+<div class="jp-NotebookPanel"><div class="jp-WindowedPanel-outer" style="width:700px">
+<div class="jp-OutputArea-output">
+ <div class="jupyter-widgets widget-container widget-box widget-vbox"
+      style="display:flex;flex-direction:column;width:300px;overflow:auto">
+  <div class="jupyter-widgets widget-inline-hbox widget-text" style="{hidden}">
+   <label class="widget-label">Supply</label><input type="text" value="3.3 V"></div>
+  <div class="jupyter-widgets widget-inline-hbox widget-text" style="width:{wide}px">
+   <label class="widget-label">Length</label><input type="text" value="14 cm"></div>
+  <div class="jupyter-widgets widget-inline-hbox widget-toggle-buttons"
+       style="display:flex;width:{buttons}px">
+   <label class="widget-label" style="width:80px;flex:none">SPI mode</label>
+   <div class="widget-toggle-buttons" style="display:flex;flex-wrap:wrap">
+    <button class="widget-toggle-button mod-active" style="width:50px">0</button>
+    <button class="widget-toggle-button" style="width:50px">1</button>
+    <button class="widget-toggle-button" style="width:50px">2</button></div></div>
+  <div class="jupyter-widgets widget-html"><div class="widget-html-content">
+   <svg width="200" height="80"><text x="10" y="20">Bus capacitance</text>
+    <text x="{x}" y="50">{label}</text><text x="10" y="70">{undefined}</text></svg>
+  </div></div>
+  <div class="jupyter-widgets widget-html"><span
+       style="color:{fail};font-weight:700">{error}</span></div>
+ </div>
+</div>
+<div class="jp-OutputArea-output" data-mime-type="{mime}">{output}</div>
+</div></div></body></html>"""
+_BAD = dict(hidden="display:none", wide=400, buttons=150, x=150,
+            label="design: 1.8 kOhm at 60.4 pF", undefined="undefined (VIL to VIH)",
+            fail=_FAIL, error="a bare number has no unit", mime="application/vnd.jupyter.stderr",
+            output="Traceback (most recent call last): ...")
+_GOOD = dict(hidden="", wide=280, buttons=280, x=10, label="design: 1.8 kOhm",
+             undefined="VIL to VIH", fail="rgb(0, 0, 0)", error="recorded", mime="text/plain",
+             output="<pre>pass 1800.0</pre>")
+
+
+@pytest.mark.parametrize("bad", [True, False], ids=["problems", "control"])
+def test_the_detectors_find_each_problem_and_only_those(chromium, bad):
+    browser, guard = chromium
+    context = new_context(browser, guard)
+    try:
+        page = context.new_page()
+        page.set_content(_PAGE.format(**(_BAD if bad else _GOOD)))
+        book = Workbook(page, "detectors.ipynb", lab=False)
+        book.scope = ".jp-NotebookPanel"
+        controls = {c["label"]: c for c in book.controls()}
+        sideways = book.sideways_problems()
+        svg = book.svg_text()["problems"]
+        outputs = book.error_outputs()
+        marks = [m["text"] for m in book.error_marks()]
+        if not bad:
+            assert all(c["shown"] for c in controls.values()), controls
+            assert (sideways, svg, outputs, marks) == ([], [], [], [])
+            return
+        assert not controls["Supply"]["shown"] and controls["Length"]["shown"]
+        text = "\n".join(sideways)
+        assert "clips its content sideways" in text, text
+        assert "its buttons wrap onto" in text, text
+        assert any("past the chart's edge" in p for p in svg), svg
+        assert any("undefined" in p for p in svg), svg
+        assert len(outputs) == 1 and "Traceback" in outputs[0], outputs
+        assert marks == ["a bare number has no unit"]
+        # a text repr in place of a widget
+        page.set_content(_PAGE.format(**{**_GOOD, "output": "&lt;pinlib.widgets.spibudget."
+                                                             "SpiBudget at 0x7fa0e80e3dd0&gt;"}))
+        assert book.error_outputs() == [
+            "a text repr instead of a widget: <pinlib.widgets.spibudget.SpiBudget at "
+            "0x7fa0e80e3dd0>"]
+    finally:
+        context.close()
+
+
+def test_label_matching_and_nearness():
+    assert label_matches("Supply (V)", "Supply") and label_matches("Supply", "supply")
+    assert not label_matches("Supply ± (%)", "Supply")
+    assert label_matches("Supply ±", "Supply", prefix=True)
+    assert not label_matches("Supplyside", "Supply", prefix=True)
+    field = {"box": {"x": 100, "y": 200, "w": 300, "h": 28}}
+    assert near({"box": {"x": 100, "y": 232, "w": 200, "h": 40}}, field)  # just below
+    assert near({"box": {"x": 410, "y": 204, "w": 200, "h": 20}}, field)  # beside
+    assert not near({"box": {"x": 100, "y": 20, "w": 200, "h": 20}}, field)  # at the top
+    assert not near({"box": {"x": 100, "y": 400, "w": 200, "h": 20}}, field)  # far below
+
+
+# =========================================================================== workbench
+
+
+def test_workbench_serves_workbook_01_without_code(lab, chromium, tmp_path):
+    """``pinlib workbench FOLDER`` (Voilà): the workbook's controls without its code, a
+    control that changes the chart, the URL printed, Ctrl-C stopping it cleanly."""
+    _, folder = lab
+    browser, guard = chromium
+    port = free_port()
+    server = Server([sys.executable, "-m", "pinlib", "workbench", "--port", str(port),
+                     str(folder.parent)],
+                    f"http://127.0.0.1:{port}/", tmp_path / "workbench.log",
+                    env=jupyter_env(tmp_path / "jupyter"))
+    server.start()
+    guard.where = "workbench"
+    context = new_context(browser, guard)
+    try:
+        page = context.new_page()
+        book = Workbook(page, "01-start-a-design.ipynb", lab=False)
+        book.open_in_voila(f"http://127.0.0.1:{port}/voila/render/01-start-a-design.ipynb")
+        book.scroll_to_widgets()
+        book.screenshot("workbench")
+        assert page.locator(".jp-InputArea-editor, .CodeMirror, .cm-editor").count() == 0, \
+            "code cells are shown"
+        controls = [c for c in book.controls() if c["label"]]
+        for want in ("Mode", "Supply", "Controller", "Length"):
+            assert any(label_matches(c["label"], want, prefix=True) and c["shown"]
+                       for c in controls), \
+                f"{want!r} is not shown; shown: {[c['label'] for c in controls if c['shown']]}"
+        before = book.figures()
+        assert before["charts"], "no chart"
+        book.choose("Mode", "standard")
+        changed = book.js("chart_change_time", before=before["charts"], timeout=30_000)
+        book.screenshot("workbench-changed")
+        assert changed is not None, "choosing a mode left the chart as it was"
+        assert [u for w, u in guard.attempts if w == "workbench"] == []
+    finally:
+        context.close()
+        code = server.stop(signal.SIGINT, timeout=20)
+    out = server.output()
+    assert f"http://127.0.0.1:{port}/" in out
+    assert "Traceback" not in out, out[-2000:]
+    assert code == 0, out[-2000:]
+
+
 # =========================================================================== the tests
 
 
@@ -313,48 +446,3 @@ def test_no_request_leaves_loopback(wb, chromium):
     _, guard = chromium
     mine = [url for where, url in guard.attempts if where == wb.spec.name]
     assert mine == [], f"requests beyond 127.0.0.1 (aborted): {mine}"
-
-
-# =========================================================================== workbench
-
-
-def test_workbench_serves_workbook_01_without_code(lab, chromium, tmp_path):
-    """``pinlib workbench FOLDER`` (Voilà): the workbook's controls without its code, a
-    control that changes the chart, the URL printed, Ctrl-C stopping it cleanly."""
-    _, folder = lab
-    browser, guard = chromium
-    port = free_port()
-    server = Server([sys.executable, "-m", "pinlib", "workbench", "--port", str(port),
-                     str(folder.parent)],
-                    f"http://127.0.0.1:{port}/", tmp_path / "workbench.log",
-                    env=jupyter_env(tmp_path / "jupyter"))
-    server.start()
-    guard.where = "workbench"
-    context = new_context(browser, guard)
-    try:
-        page = context.new_page()
-        book = Workbook(page, "01-start-a-design.ipynb", lab=False)
-        book.open_in_voila(f"http://127.0.0.1:{port}/voila/render/01-start-a-design.ipynb")
-        book.scroll_to_widgets()
-        book.screenshot("workbench")
-        assert page.locator(".jp-InputArea-editor, .CodeMirror, .cm-editor").count() == 0, \
-            "code cells are shown"
-        controls = [c for c in book.controls() if c["label"]]
-        for want in ("Mode", "Supply", "Controller", "Length"):
-            assert any(label_matches(c["label"], want, prefix=True) and c["shown"]
-                       for c in controls), \
-                f"{want!r} is not shown; shown: {[c['label'] for c in controls if c['shown']]}"
-        before = book.figures()
-        assert before["charts"], "no chart"
-        book.choose("Mode", "standard")
-        changed = book.js("chart_change_time", before=before["charts"], timeout=30_000)
-        book.screenshot("workbench-changed")
-        assert changed is not None, "choosing a mode left the chart as it was"
-        assert [u for w, u in guard.attempts if w == "workbench"] == []
-    finally:
-        context.close()
-        code = server.stop(signal.SIGINT, timeout=20)
-    out = server.output()
-    assert f"http://127.0.0.1:{port}/" in out
-    assert "Traceback" not in out, out[-2000:]
-    assert code == 0, out[-2000:]

@@ -220,7 +220,8 @@ def run(args) -> int:
                                   hint=M.SERVER_OUTPUT_HINT)
             time.sleep(0.2)
         books = sorted(folder.glob("*.ipynb"))
-        print(f"Serving the {len(books)} workbooks of {folder} at {url}", flush=True)
+        what = "1 workbook" if len(books) == 1 else f"{len(books)} workbooks"
+        print(f"Serving {what} of {folder} at {url}", flush=True)
         for book in books:
             print(f"  {url}voila/render/{quote(book.name)}", flush=True)
         print("Ctrl-C stops the server.", flush=True)
