@@ -258,6 +258,8 @@ def test_swap_view_follows_the_position_just_changed():
     x = SwapExplorer(DEMO)
     assert x.apply_swap("U4", "io-expander-i2c") == []
     assert x.ref.value == "U4" and x.chart_bus.value == "sensors"
+    assert dict((v, k) for k, v in x.ref.options)["U4"].startswith(
+        "U4 — io-expander-i2c, was eeprom-i2c")
     assert x.ranking.ref == "U4" and x.ranking.current == "io-expander-i2c"
     assert "io-expander-i2c" not in [v for _, v in x.new_part.options]
     # the next swap is on the SPI flash: everything moves to it

@@ -32,9 +32,11 @@ which such a page loads from a CDN.  For a page that must read offline, every cl
 
 Modules
 -------
-``common`` (labels, layouts, tables, the chart view, the panel base class), ``designdoc``
-(design text and trace controls), and one module per workbench: ``busbuilder`` (01),
-``lineexplorer`` (02), ``spibudget`` (03), ``recorder`` (04), ``swaps`` (05).
+``common`` (layouts, quantity fields, option lists, the chart view, the panel base class),
+``markup`` (badges, notes, tables of figures and checks), ``designdoc`` (design text and
+trace controls), and one module per workbench: ``busbuilder`` (01), ``lineexplorer`` (02),
+``spibudget`` (03), ``recorder`` (04), ``swaps`` (05).  Labels of figures and checks come
+from :mod:`pinlib.labels`.
 
 This package imports ipywidgets, and altair through :mod:`pinlib.charts`; the command line
 and :mod:`pinlib.check` never import it.

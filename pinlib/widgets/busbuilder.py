@@ -128,7 +128,10 @@ class BusBuilder(_Panel):
     ``geometry``, ``length``, ``width``, ``height``, ``thickness``, ``er``,
     ``capacitance_per_length``, ``delay_per_length``, ``extra_capacitance``, ``pullup``
     (``"auto"`` or an E24 value), ``pullup_tolerance``, ``rise_measured``, ``c_probe``,
-    ``levels``, ``title``.
+    ``levels``, ``title``.  In the browser the quantities are typed with their units
+    (:class:`~pinlib.widgets.common.QuantityField`); a refused text leaves everything as it
+    was and says why under the field.  A controller the filters no longer allow stays the
+    controller, and ``controller_note`` says why it does not fit.
 
     Attributes
     ----------
@@ -437,8 +440,9 @@ class BusBuilder(_Panel):
                 self.pullup.value = _closest_option(self.pullup.options, chosen, "pullup",
                                                     "pull-up slider")
         w = window
-        self.window.draw(lambda: charts.pullup_window(
-            w.cb, w.rp_min, w.rp_max, chosen_cb=w.chosen_cb, chosen_rp=w.chosen_rp,
+        self.window.draw(lambda: charts.spec(
+            charts.pullup_window, w.cb, w.rp_min, w.rp_max, chosen_cb=w.chosen_cb,
+            chosen_rp=w.chosen_rp,
             title=f"Pull-up window, {w.signal.upper()}",
             subtitle=(f"tr ≤ {format_si(w.tr_max, 's')}; Rp(min) {format_si(w.rp_min, 'Ω')}"
                       + (f" set by {w.weakest}" if w.weakest else "")),

@@ -478,6 +478,8 @@ class _Panel:
         return {n: f.error for n, f in self.fields.items() if f.error is not None}
 
     def _changed(self, change=None) -> None:
+        """A control changed: recompute, unless changes are batched or a field is
+        refused (then the notice above the figures says which)."""
         if self._quiet:
             return
         if self._show_held():
@@ -507,8 +509,9 @@ class _Panel:
     def set(self, **values):
         """Set several controls at once (SI units), then recompute once.
 
-        The names a class accepts are listed in its docstring; an unknown name is an
-        InputError naming the accepted ones.
+        The names a class accepts are listed in its docstring; an unknown name, or a value
+        outside a field's range, is an InputError naming what would do.  While a field
+        typed in the browser is refused, nothing is recomputed (see :meth:`_changed`).
         """
         unknown = sorted(set(values) - set(self._setters))
         if unknown:

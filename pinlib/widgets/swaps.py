@@ -164,13 +164,22 @@ class SwapExplorer(_Panel):
         self.refused_html.value = ""
         with self._hold():
             self.path_box.value = str(path)
-            refs = {}
-            for b in design.buses:
-                for d in b.devices:
-                    refs.setdefault(d.ref, [d.part_id, []])[1].append(b.id)
-            set_options(self.ref, [(f"{ref} — {pid} ({', '.join(buses)})", ref)
-                                   for ref, (pid, buses) in refs.items()], self.ref.value)
+            self._label_refs()
         self._ref_changed()
+
+    def _label_refs(self) -> None:
+        """The Device list: each position with the part there now (and the one it
+        replaced) and its buses."""
+        refs: dict[str, list[str]] = {}
+        for b in self.design.buses:
+            for d in b.devices:
+                refs.setdefault(d.ref, []).append(b.id)
+        labels = []
+        for ref, buses in refs.items():
+            old, now = self._places(ref)[0][1].part_id, self._part_at(ref)
+            part = now if now == old else f"{now}, was {old}"
+            labels.append((f"{ref} — {part} ({', '.join(buses)})", ref))
+        set_options(self.ref, labels, self.ref.value)
 
     def _load_clicked(self) -> None:
         try:
@@ -224,6 +233,7 @@ class SwapExplorer(_Panel):
         self.swaps[ref] = part_id
         self._choose_bus = True
         with self._hold():
+            self._label_refs()
             if ref in _values(self.ref.options):
                 self.ref.value = ref
             self._ref_changed()  # the part now there is no longer offered
@@ -236,6 +246,7 @@ class SwapExplorer(_Panel):
         self.refused = []
         self.refused_html.value = ""
         with self._hold():
+            self._label_refs()
             self._ref_changed()
         self.update()
 
@@ -373,31 +384,32 @@ class SwapExplorer(_Panel):
         return self.design.buses[0] if self.design.buses else None
 
     def _chart_for(self, bus, design, label: str):
-        """The chart that says most about a bus: the pull-up window of an open-drain bus
-        (the segment of the position), the timing budget of an SPI bus, the edge chart
-        of a GPIO line."""
+        """The specification of the chart that says most about a bus: the pull-up window of
+        an open-drain bus (the segment of the position), the timing budget of an SPI bus,
+        the edge chart of a GPIO line."""
         if bus.protocol in ("i2c", "smbus"):
             ref = self.ref.value
             seg = next((s.id for s in bus.segments if any(d.ref == ref for d in s.devices)),
                        None)
             w = plotdata.pullup_window_data(bus, design, seg, "sda")
-            return charts.pullup_window(
-                w.cb, w.rp_min, w.rp_max, chosen_cb=w.chosen_cb, chosen_rp=w.chosen_rp,
+            return charts.spec(
+                charts.pullup_window, w.cb, w.rp_min, w.rp_max, chosen_cb=w.chosen_cb,
+                chosen_rp=w.chosen_rp,
                 title=f"{label}: pull-up window, {bus.id} {w.segment} SDA",
                 chosen_label=f"design: {format_si(w.chosen_rp, 'Ω')} at "
                              f"{format_si(w.chosen_cb, 'F')}")
         if bus.protocol == "spi":
             tb = plotdata.timing_budget_data(bus, design)
-            return charts.timing_budget(tb.rows, available=tb.available, margins=tb.margins,
-                                        status=tb.status,
-                                        title=f"{label}: timing budget, {bus.id}")
+            return charts.spec(charts.timing_budget, tb.rows, available=tb.available,
+                               margins=tb.margins, status=tb.status,
+                               title=f"{label}: timing budget, {bus.id}")
         sig = next(iter(bus.lines))
         ed = plotdata.edge_vs_load_data(bus, design, sig)
-        return charts.edge_vs_load(ed.loads, np.vstack(list(ed.curves.values())),
-                                   series=list(ed.curves),
-                                   points=ed.points if len(ed.points[0]) else None,
-                                   operating=(ed.operating[0], ed.operating[1], "far end"),
-                                   title=f"{label}: edge time against load, {bus.id} {sig}")
+        return charts.spec(charts.edge_vs_load, ed.loads, np.vstack(list(ed.curves.values())),
+                           series=list(ed.curves),
+                           points=ed.points if len(ed.points[0]) else None,
+                           operating=(ed.operating[0], ed.operating[1], "far end"),
+                           title=f"{label}: edge time against load, {bus.id} {sig}")
 
     def _draw(self) -> None:
         bus = self._focus_bus()
