@@ -323,11 +323,11 @@ function widgetRoots(scope) {
     el => !(el.parentElement && el.parentElement.closest('.jupyter-widgets')));
 }
 function kernelBusy() {
+  // JupyterLab's notebook kernel (Voila has no notebook panel: never busy here)
   const app = window.jupyterapp;
-  if (!app) return false;
-  const w = app.shell.currentWidget;
-  const k = w && w.sessionContext && w.sessionContext.session &&
-            w.sessionContext.session.kernel;
+  const w = app && app.shell && app.shell.currentWidget;
+  if (!w || !w.sessionContext) return false;
+  const k = w.sessionContext.session && w.sessionContext.session.kernel;
   return !k || k.status !== 'idle';
 }
 function hash(s) {
@@ -615,12 +615,18 @@ _JS = {
             if (!svg.parentElement.closest('svg')) now.push(hash(svg.outerHTML));
         return JSON.stringify(now) !== JSON.stringify(before);
       };
-      const obs = new MutationObserver(() => {
-        if (check()) { obs.disconnect(); resolve(performance.now() - t0); }
-      });
+      // the change may already be there (a fast redraw): checked at once, on every
+      // mutation, and every 50 ms
+      let done = false, timer = null;
+      const finish = v => { if (!done) { done = true; obs.disconnect(); clearInterval(timer);
+                                         resolve(v); } };
+      const obs = new MutationObserver(() => { if (check()) finish(performance.now() - t0); });
       obs.observe(scope, {subtree: true, childList: true, characterData: true});
-      setTimeout(() => { obs.disconnect(); resolve(check() ? performance.now() - t0 : null); },
-                 arg.timeout);
+      timer = setInterval(() => {
+        if (check()) finish(performance.now() - t0);
+        else if (performance.now() - t0 > arg.timeout) finish(null);
+      }, 50);
+      if (check()) finish(0);
     })""",
     # choose option `index` of the tagged dropdown as a user does (the change event);
     # ms from that event to the first and to the last change of an SVG under the widgets

@@ -163,8 +163,10 @@ def chromium():
 _TIMES: dict[str, dict[str, float]] = {}
 
 
-@pytest.fixture(scope="session", autouse=False)
+@pytest.fixture(scope="session")
 def timings():
+    """Seconds spent per workbook (and in the workbench test), written to
+    out/browser/timings.txt at the end of the session."""
     yield _TIMES
     if _TIMES:
         OUT.mkdir(parents=True, exist_ok=True)
@@ -293,7 +295,7 @@ def test_label_matching_and_nearness():
 # =========================================================================== workbench
 
 
-def test_workbench_serves_workbook_01_without_code(lab, chromium, tmp_path):
+def test_workbench_serves_workbook_01_without_code(lab, chromium, timings, tmp_path):
     """``pinlib workbench FOLDER`` (Voilà): the workbook's controls without its code, a
     control that changes the chart, the URL printed, Ctrl-C stopping it cleanly."""
     _, folder = lab
@@ -303,13 +305,16 @@ def test_workbench_serves_workbook_01_without_code(lab, chromium, tmp_path):
                      str(folder.parent)],
                     f"http://127.0.0.1:{port}/", tmp_path / "workbench.log",
                     env=jupyter_env(tmp_path / "jupyter"))
+    t0 = time.perf_counter()
     server.start()
+    steps = {"start": time.perf_counter() - t0}
     guard.where = "workbench"
     context = new_context(browser, guard)
     try:
         page = context.new_page()
         book = Workbook(page, "01-start-a-design.ipynb", lab=False)
         book.open_in_voila(f"http://127.0.0.1:{port}/voila/render/01-start-a-design.ipynb")
+        steps["open"] = book.timings["open"]
         book.scroll_to_widgets()
         book.screenshot("workbench")
         assert page.locator(".jp-InputArea-editor, .CodeMirror, .cm-editor").count() == 0, \
@@ -323,12 +328,16 @@ def test_workbench_serves_workbook_01_without_code(lab, chromium, tmp_path):
         assert before["charts"], "no chart"
         book.choose("Mode", "standard")
         changed = book.js("chart_change_time", before=before["charts"], timeout=30_000)
+        steps["change"] = (changed or 0) / 1e3
         book.screenshot("workbench-changed")
         assert changed is not None, "choosing a mode left the chart as it was"
         assert [u for w, u in guard.attempts if w == "workbench"] == []
     finally:
         context.close()
+        t1 = time.perf_counter()
         code = server.stop(signal.SIGINT, timeout=20)
+        steps["stop"] = time.perf_counter() - t1
+        timings["workbench"] = steps
     out = server.output()
     assert f"http://127.0.0.1:{port}/" in out
     assert "Traceback" not in out, out[-2000:]
