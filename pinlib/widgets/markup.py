@@ -20,7 +20,7 @@ from pinlib.result import CAUTION, BusResult, Group
 
 STATUS_TEXT = {"pass": "PASS", "warn": "WARN", "fail": "FAIL"}
 _BORDER = "border:1px solid #c8c8c8;padding:1px 6px;vertical-align:top"
-CELL = f"{_BORDER};text-align:left;overflow-wrap:anywhere"
+CELL = f"{_BORDER};text-align:left;overflow-wrap:break-word"
 NUM = f"{_BORDER};text-align:right;white-space:nowrap"
 HEAD = f"{_BORDER};text-align:left;background:#eef0f2"
 #: The frame of every table: as wide as its content, never wider than its column.
