@@ -1,7 +1,7 @@
 """The workbooks as a user meets them: JupyterLab in headless Chromium at 1400 × 900.
 
 One JupyterLab (127.0.0.1, no token, a temporary folder holding a copy of the workbooks
-and their designs) and one Chromium serve the whole session.  Each workbook is opened
+and their designs) and one Chromium serve every test of this module.  Each workbook is opened
 with the file browser side panel open and run with Run All; then, at 1400 × 900:
 
 * every labelled control is shown with a non-zero size (those on a tab that is not
@@ -132,7 +132,9 @@ SPECS = [
 # =========================================================================== fixtures
 
 
-@pytest.fixture(scope="session")
+# One JupyterLab and one Chromium for this module (every browser test is here); stopped at
+# its end, so the rest of the suite runs without them (and without Playwright's loop).
+@pytest.fixture(scope="module")
 def lab(tmp_path_factory):
     """JupyterLab on 127.0.0.1 serving a copy of the workbooks: (base URL, folder)."""
     _need_browser()
@@ -145,9 +147,9 @@ def lab(tmp_path_factory):
         server.stop()
 
 
-@pytest.fixture(scope="session")
+@pytest.fixture(scope="module")
 def chromium():
-    """One headless Chromium for the session and the guard of its requests."""
+    """One headless Chromium and the guard of its requests."""
     _need_browser()
     from playwright.sync_api import sync_playwright
 
@@ -163,7 +165,7 @@ def chromium():
 _TIMES: dict[str, dict[str, float]] = {}
 
 
-@pytest.fixture(scope="session")
+@pytest.fixture(scope="module")
 def timings():
     """Seconds spent per workbook (and in the workbench test), written to
     out/browser/timings.txt at the end of the session."""
