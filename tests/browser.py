@@ -100,7 +100,7 @@ class Server:
         self.proc: subprocess.Popen | None = None
 
     def start(self, timeout: float = 120.0) -> Server:
-        self._log = open(self.log, "wb")  # noqa: SIM115 - closed in stop()
+        self._log = open(self.log, "wb")  # closed in stop()
         # a session of its own: the server and its kernels are stopped together
         self.proc = subprocess.Popen(self.cmd, stdout=self._log, stderr=subprocess.STDOUT,
                                      stdin=subprocess.DEVNULL, env=self.env, cwd=self.cwd,
@@ -355,6 +355,10 @@ function errorMarks(scope, failRgb) {
 }
 """
 
+# Tolerances used below (common practice, no source): 1 px for sub-pixel rounding of
+# layout boxes; a value of up to 16 characters (a quantity with its unit) must show whole
+# in its field; two texts overprint when they share more than 20 % of the smaller one's
+# box; an error is "beside" its field when it starts within 60 px below it.
 _JS = {
     # every labelled control: label, kind, box, shown, hidden on purpose (tab)
     "controls": """(arg) => {
@@ -829,10 +833,7 @@ class Workbook:
         """Type ``text`` into the field labelled ``label`` as a user does: click, select
         what is there, type, Enter.  Returns the control's info and the text the field
         shows afterwards (``shown``)."""
-        found = self.control(label)
-        if found is None:
-            raise LookupError(f"no control labelled {label!r}; labels: {self.labels()}")
-        loc, info = found
+        loc, info = self.shown_control(label)
         if info["kind"] == "slider":
             field = loc.locator(".widget-readout")
         else:
@@ -854,10 +855,7 @@ class Workbook:
     def choose(self, label: str, option: str | None = None) -> str:
         """Choose ``option`` (its text) in the dropdown or toggle buttons labelled
         ``label``; without ``option``, the next one.  Returns the option chosen."""
-        found = self.control(label)
-        if found is None:
-            raise LookupError(f"no control labelled {label!r}; labels: {self.labels()}")
-        loc, info = found
+        loc, info = self.shown_control(label)
         if info["kind"] == "toggle-buttons":
             buttons = loc.locator(".widget-toggle-button")
             texts = [t.strip() for t in buttons.all_inner_texts()]
@@ -884,7 +882,7 @@ class Workbook:
 
     def options(self, label: str) -> list[str]:
         """The option texts of the dropdown labelled ``label``."""
-        loc, _ = self._found(label)
+        loc, _ = self.shown_control(label)
         return [t.strip() for t in loc.locator("select option").all_inner_texts()]
 
     def time_choice(self, label: str, index: int, timeout: float = 30.0):
@@ -892,23 +890,25 @@ class Workbook:
         change event to the first and to the last chart that differs and to the page's
         last change, as ``(first, last, done)``; None when no chart changed within
         ``timeout``."""
-        self._found(label)
+        self.shown_control(label)
         got = self.js("timed_choice", tag=f"c{self._tag}", index=index, quiet=300,
                       timeout=timeout * 1e3)
         return None if got is None else (got["first"] / 1e3, got["last"] / 1e3,
                                          got["done"] / 1e3)
 
-    def _found(self, label: str):
+    def shown_control(self, label: str):
+        """The control labelled ``label``, shown on the page (an AssertionError at once
+        when it is missing or hidden, rather than a wait for it to show)."""
         found = self.control(label)
         if found is None:
-            raise LookupError(f"no control labelled {label!r}; labels: {self.labels()}")
+            raise AssertionError(f"no control labelled {label!r}; labels: {self.labels()}")
+        if not found[1]["shown"]:
+            raise AssertionError(f"the control {found[1]['label']!r} is not shown "
+                                 f"({found[1]['box']['w']}x{found[1]['box']['h']} px)")
         return found
 
     def click_button(self, label: str) -> None:
-        found = self.control(label)
-        if found is None:
-            raise LookupError(f"no button labelled {label!r}; labels: {self.labels()}")
-        found[0].click()
+        self.shown_control(label)[0].click()
 
     def select_tab(self, title: str) -> None:
         tab = self.page.locator(".widget-tab .lm-TabBar-tab", has_text=title)
@@ -917,7 +917,11 @@ class Workbook:
 
 
 def near(mark: dict, control: dict, *, below: int = 60) -> bool:
-    """True when an error mark sits beside or just below a control (its row)."""
+    """True when an error mark sits beside or just below a control (its row).
+
+    Common practice, no source: within ``below`` px under the field (two lines of
+    message text), 4 px of rounding above it, and not left of the field's column by
+    more than 20 px (the label's side)."""
     m, c = mark["box"], control["box"]
     vertical = m["y"] < c["y"] + c["h"] + below and m["y"] + m["h"] > c["y"] - 4
     horizontal = m["x"] + m["w"] > c["x"] - 20

@@ -66,10 +66,10 @@ def _workbook_widget(name: str):
             if cell["cell_type"] != "code":
                 continue
             source = "".join(cell["source"])
-            exec(compile(source, name, "exec"), ns)  # noqa: S102 - the workbook's own code
+            exec(compile(source, name, "exec"), ns)  # the workbook's own code
             last = source.strip().splitlines()[-1].strip()
             if last.endswith(".widget"):
-                return eval(last[: -len(".widget")], ns)  # noqa: S307
+                return eval(last[: -len(".widget")], ns)
     finally:
         os.chdir(old)
     raise LookupError(f"{name}: no cell displays a widget")
