@@ -278,6 +278,12 @@ def test_the_detectors_find_each_problem_and_only_those(chromium, bad):
         assert book.error_outputs() == [
             "a text repr instead of a widget: <pinlib.widgets.spibudget.SpiBudget at "
             "0x7fa0e80e3dd0>"]
+        # a request beyond 127.0.0.1 is aborted and recorded
+        guard.where = "detectors"
+        page.set_content('<img src="http://example.invalid/chart.png">')
+        page.wait_for_timeout(300)
+        assert ("detectors", "http://example.invalid/chart.png") in guard.attempts
+        guard.attempts.clear()
     finally:
         context.close()
 
