@@ -198,10 +198,6 @@ def test_the_extra_is_named_when_a_feature_needs_it(installed):
     assert last.endswith("pip install 'pinlib[notebook]'")
 
 
-@pytest.mark.xfail(reason="pinlib/widgets/__init__.py does not call pinlib.extras.need yet "
-                          "(owned by the widgets work of issue 12): add need('ipywidgets', "
-                          "extra='notebook', feature='the workbook widgets') above its "
-                          "imports, then remove this mark", strict=True)
 def test_the_widgets_without_the_notebook_extra_name_it(installed):
     proc = installed.python("import pinlib.widgets")
     last = proc.stderr.strip().splitlines()[-1]

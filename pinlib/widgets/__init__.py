@@ -42,13 +42,19 @@ This package imports ipywidgets, and altair through :mod:`pinlib.charts`; the co
 and :mod:`pinlib.check` never import it.
 """
 
-from pinlib.widgets.busbuilder import BenchReading, BusBuilder
-from pinlib.widgets.common import ChartView, StaticView, find_file
-from pinlib.widgets.lineexplorer import LineExplorer
-from pinlib.widgets.markup import checks_table, figures_table
-from pinlib.widgets.recorder import PartRecorder
-from pinlib.widgets.spibudget import ClockLimit, SpiBudget
-from pinlib.widgets.swaps import SwapExplorer
+from pinlib.extras import need
+
+# without the notebook extra, say which one to install (not a bare ModuleNotFoundError);
+# the imports below come after this check on purpose
+need("ipywidgets", extra="notebook", feature="the workbook widgets")
+
+from pinlib.widgets.busbuilder import BenchReading, BusBuilder  # noqa: E402
+from pinlib.widgets.common import ChartView, StaticView, find_file  # noqa: E402
+from pinlib.widgets.lineexplorer import LineExplorer  # noqa: E402
+from pinlib.widgets.markup import checks_table, figures_table  # noqa: E402
+from pinlib.widgets.recorder import PartRecorder  # noqa: E402
+from pinlib.widgets.spibudget import ClockLimit, SpiBudget  # noqa: E402
+from pinlib.widgets.swaps import SwapExplorer  # noqa: E402
 
 __all__ = [
     "ChartView",
