@@ -100,8 +100,8 @@ def run(args) -> int:
         atomic_write(dest, (source / rel).read_bytes().decode("utf-8"))
 
     design = shlex.quote(str(target / DEMO_DESIGN))
-    print(f"Copied the demo into {folder}: {len(files)} files, an invented scenario built "
-          "from generic part classes.")
+    print(f"Copied the demo into {folder}: {len(files)} files.")
+    print("(An invented scenario built from generic part classes.)")
     for rel in files:
         print(f"  {target / rel}")
     print("\nNext:")
