@@ -47,9 +47,9 @@ import re
 from dataclasses import dataclass, field
 
 from pinlib import __version__
-from pinlib import messages as M
-from pinlib.errors import PinlibError
-from pinlib.quantity import format_si
+from pinlib.core import messages as M
+from pinlib.core.errors import PinlibError
+from pinlib.core.quantity import format_si
 from pinlib.report import format_value
 from pinlib.result import CAUTION, BusResult, Check, DesignResult, Group
 
@@ -301,7 +301,7 @@ def _push_pull_charts(bus, design, result: BusResult, keys, charts):
                 charts.setdefault(place, []).append(
                     ReviewChart(key, "edge-vs-load", title, "", None, err.message))
                 continue
-            op_label = f"far end on the line ({e.model} model)"
+            op_label = e.operating_label
             caption = (f"Curves: the driver model of {ref} (a ramp behind r_out, fitted to "
                        "its datasheet edges) into a lumped load at the pin"
                        + (f", without and with the {_f(e.rs, 'Ω')} series resistor" if e.rs
@@ -316,14 +316,14 @@ def _push_pull_charts(bus, design, result: BusResult, keys, charts):
                     e.loads, np.vstack(list(e.curves.values())), series=list(e.curves),
                     points=e.points if len(e.points[0]) else None,
                     operating=(e.operating[0], e.operating[1], op_label),
-                    edge_label="Edge time", title=title,
-                    subtitle="curves: driver model into a lumped load; cross: the real line")))
+                    curves_title=e.curves_title, edge_label="Edge time", title=title,
+                    subtitle=e.subtitle)))
             title = f"Receiver waveforms: {bus.id} {sig.upper()} from {ref}"
             rx = ", ".join(w.receivers) or "no receiver"
             over = "; ".join(f"{n}: overshoot {_f(v, 'V')}" for n, v in w.overshoot.items())
             caption = (f"Voltage at the far end ({rx}) for a rising and a falling edge of "
                        f"{ref}" + (", with and without the series resistor" if e.rs else "")
-                       + f". Shaded: the undefined band between VIL {_f(w.v_il, 'V')} and VIH "
+                       + f". Shaded: the band between VIL {_f(w.v_il, 'V')} and VIH "
                        f"{_f(w.v_ih, 'V')}; dotted: VDD {_f(w.vdd, 'V')}. {over}."
                        + ("".join(f" {n}." for n in w.notes)))
             charts[place].append(_draw(

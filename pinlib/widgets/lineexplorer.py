@@ -10,10 +10,10 @@ import numpy as np
 import tomlkit
 
 from pinlib import charts, plotdata
-from pinlib import messages as M
 from pinlib.buses.pushpull import evaluate_gpio, gpio_analyses
 from pinlib.check import design_result
-from pinlib.errors import InputError, PinlibError
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError, PinlibError
 from pinlib.library import load_library
 from pinlib.library.loader import Library
 from pinlib.widgets.common import (
@@ -321,9 +321,9 @@ class LineExplorer(_Panel):
             charts.edge_vs_load, e.loads, np.vstack(list(e.curves.values())),
             series=list(e.curves),
             points=e.points if len(e.points[0]) else None,
-            operating=(e.operating[0], e.operating[1], f"far end ({e.model} line)"),
-            edge_label="Edge time", title=f"Edge time against load: {e.driver}",
-            subtitle="driver model into a lumped load; 10–90 % unless a curve says 20-80"))
+            operating=(e.operating[0], e.operating[1], e.operating_label),
+            curves_title=e.curves_title, edge_label="Edge time",
+            title=f"Edge time against load: {e.driver}", subtitle=e.subtitle))
 
     def _draw_waves(self, w) -> None:
         if not w.receivers:
