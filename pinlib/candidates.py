@@ -30,15 +30,15 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from pinlib import messages as M
 from pinlib.buses import odbatch as ob
 from pinlib.buses import opendrain as od
 from pinlib.compare import can_serve, positions
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError, PinlibError
+from pinlib.core.progress import progress_bar
+from pinlib.core.quantity import format_si
 from pinlib.design import Bus, Design, Device
-from pinlib.errors import InputError, PinlibError
 from pinlib.library.schema import CATEGORIES, Part
-from pinlib.progress import progress_bar
-from pinlib.quantity import format_si
 from pinlib.result import STATUSES, BusResult, worst
 
 __all__ = [

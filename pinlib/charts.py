@@ -21,9 +21,9 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from pinlib import messages as M
-from pinlib.errors import InputError
-from pinlib.quantity import format_si
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
+from pinlib.core.quantity import format_si
 
 if TYPE_CHECKING:  # pragma: no cover - typing only
     import altair as alt

@@ -2,7 +2,7 @@
 
 Each subcommand lives in ``pinlib/commands/<name>.py`` with two functions:
 ``add_parser(subparsers)`` and ``run(args) -> int`` (the exit code).  A
-:class:`~pinlib.errors.PinlibError` anywhere below becomes one clear message on
+:class:`~pinlib.core.errors.PinlibError` anywhere below becomes one clear message on
 standard error and exit code 2 — never a traceback.
 """
 
@@ -13,7 +13,7 @@ import importlib
 import sys
 
 from pinlib import __version__
-from pinlib.errors import PinlibError
+from pinlib.core.errors import PinlibError
 
 __all__ = ["main", "COMMANDS"]
 

@@ -32,14 +32,14 @@ from typing import Any
 from pydantic import BaseModel
 
 from pinlib import __version__
-from pinlib import messages as M
-from pinlib.errors import InputError
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
+from pinlib.core.quantity import Threshold, format_si, format_threshold, parse_ratio
+from pinlib.core.tomlfile import atomic_write
 from pinlib.library.loader import BUILTIN_DIR
 from pinlib.library.schema import Part
 from pinlib.library.values import Sourced
-from pinlib.quantity import Threshold, format_si, format_threshold, parse_ratio
 from pinlib.result import FORMAT as RESULT_FORMAT
-from pinlib.tomlfile import atomic_write
 
 __all__ = [
     "CHANGES_FORMAT",
@@ -922,7 +922,7 @@ def positions(design, ref: str, *, field: str = "REF") -> list:
     DesignError
         When no device has that reference (``field`` names where it was given).
     """
-    from pinlib.errors import DesignError
+    from pinlib.core.errors import DesignError
 
     out = [(b, d) for b in design.buses for d in b.devices if d.ref == ref]
     if not out:
@@ -1067,7 +1067,7 @@ def can_serve(old_part: Part, new_part: Part, device, bus) -> list[str]:
 
 def _can_serve_gpio(old_part: Part, new_part: Part, device, bus) -> list[str]:
     from pinlib.buses.pushpull import gpio_pin
-    from pinlib.errors import PinlibError
+    from pinlib.core.errors import PinlibError
 
     reasons = []
     n_lines = len(bus.lines)
@@ -1126,9 +1126,9 @@ def swapped_text(design, swaps: dict[str, str]) -> str:
 
     import tomlkit
 
+    from pinlib.core.errors import DesignError
+    from pinlib.core.tomlfile import tomllib
     from pinlib.design import design_from_text
-    from pinlib.errors import DesignError
-    from pinlib.tomlfile import tomllib
 
     fname = str(design.path) if design.path else None
     places = {ref: [] for ref in swaps}

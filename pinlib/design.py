@@ -21,13 +21,13 @@ from typing import Annotated, Literal
 
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, ValidationError
 
-from pinlib import messages as M
-from pinlib.errors import DesignError, PinlibError
+from pinlib.core import messages as M
+from pinlib.core.errors import DesignError, PinlibError
+from pinlib.core.quantity import format_si, parse
+from pinlib.core.tomlfile import dotted as dotted_path
+from pinlib.core.tomlfile import line_index, line_of, load
 from pinlib.library.loader import Library, load_library, pydantic_errors
 from pinlib.library.schema import Part
-from pinlib.quantity import format_si, parse
-from pinlib.tomlfile import dotted as dotted_path
-from pinlib.tomlfile import line_index, line_of, load
 
 __all__ = [
     "FORMAT",
@@ -570,7 +570,7 @@ def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bu
         seg_id = rs.id or (rb.id if len(own) == 1 else f"{rb.id}-{si + 1}")
         cab = cables(rs.cables or (rb.cables if rs is not rb else ()), sloc + ("cables",))
         series = pick("pullup_series", "E24")
-        from pinlib.eseries import SERIES_NAMES
+        from pinlib.core.eseries import SERIES_NAMES
         if series.upper() not in SERIES_NAMES:
             raise err(M.UNKNOWN_NUMBER_SERIES, sloc + ("pullup_series",), value=series,
                       expected="one of " + ", ".join(SERIES_NAMES))

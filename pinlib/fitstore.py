@@ -16,7 +16,7 @@ reads them back on the next run:
   ``~/.cache/pinlib``.  ``PINLIB_CACHE_DIR=off`` (or empty) keeps fits for the process
   only.
 * **Writes.**  Once, when the command ends, under the file's lock and atomically
-  (:func:`pinlib.tomlfile.atomic_write`), merging what another run stored meanwhile.  A
+  (:func:`pinlib.core.tomlfile.atomic_write`), merging what another run stored meanwhile.  A
   folder that cannot be written, or a damaged file, only costs the fits being computed
   again: nothing is reported and nothing else changes.
 
@@ -115,8 +115,8 @@ class FitStore(MutableMapping):
         """Write the fits made since the store was read; True when written."""
         if not self._new:
             return False
-        from pinlib.errors import PinlibError
-        from pinlib.tomlfile import atomic_write, file_lock
+        from pinlib.core.errors import PinlibError
+        from pinlib.core.tomlfile import atomic_write, file_lock
 
         try:
             self.path.parent.mkdir(parents=True, exist_ok=True)

@@ -33,12 +33,12 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from pinlib import messages as M
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
+from pinlib.core.quantity import format_si
 from pinlib.design import Bus, Design
-from pinlib.errors import InputError
 from pinlib.physics import driver as drv
 from pinlib.physics import rc
-from pinlib.quantity import format_si
 from pinlib.result import check_min
 
 __all__ = [

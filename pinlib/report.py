@@ -8,7 +8,7 @@ from __future__ import annotations
 import math
 import textwrap
 
-from pinlib.quantity import format_si
+from pinlib.core.quantity import format_si
 from pinlib.result import CAUTION, BusResult, Check, DesignResult, Group
 
 __all__ = ["format_text", "format_value"]

@@ -48,14 +48,14 @@ from statistics import NormalDist
 
 import numpy as np
 
-from pinlib import messages as M
 from pinlib.buses import odbatch as ob
 from pinlib.buses import opendrain as od
 from pinlib.buses import ppbatch as ppb
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
+from pinlib.core.progress import progress_bar
+from pinlib.core.quantity import format_si
 from pinlib.design import Bus, Design, Segment
-from pinlib.errors import InputError
-from pinlib.progress import progress_bar
-from pinlib.quantity import format_si
 
 __all__ = [
     "CONFIDENCE",

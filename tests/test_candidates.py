@@ -14,8 +14,8 @@ import pytest
 
 from pinlib import candidates as cand
 from pinlib.cli import main
+from pinlib.core.errors import DesignError, InputError
 from pinlib.design import load_design
-from pinlib.errors import DesignError, InputError
 from pinlib.library.loader import Library, load_library
 from pinlib.library.values import Sourced
 

@@ -16,7 +16,7 @@ import numpy as np
 import pytest
 
 from pinlib import charts
-from pinlib.errors import InputError
+from pinlib.core.errors import InputError
 
 pytest.importorskip("altair")
 pytest.importorskip("vl_convert")

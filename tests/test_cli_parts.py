@@ -10,8 +10,8 @@ from pathlib import Path
 import pytest
 
 from pinlib.cli import main
+from pinlib.core.tomlfile import tomllib
 from pinlib.library import loader
-from pinlib.tomlfile import tomllib
 
 BASE = """\
 format = "pinlib.part/1"

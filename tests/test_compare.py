@@ -31,8 +31,8 @@ from pinlib.compare import (
     swapped_text,
     value_label,
 )
+from pinlib.core.errors import InputError, UnitError
 from pinlib.design import load_design
-from pinlib.errors import InputError, UnitError
 
 # ---------------------------------------------------------------- invented test data
 

@@ -8,8 +8,8 @@ from pathlib import Path
 import pytest
 
 from pinlib.cli import main
+from pinlib.core.errors import DesignError
 from pinlib.design import load_design
-from pinlib.errors import DesignError
 
 PARTS = Path(__file__).parent / "data" / "parts"
 

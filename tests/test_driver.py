@@ -10,7 +10,7 @@ import numpy as np
 import pytest
 from spice import have_ngspice, run_deck
 
-from pinlib.errors import FitWarning, InputError
+from pinlib.core.errors import FitWarning, InputError
 from pinlib.library.schema import Pin
 from pinlib.physics import driver
 from pinlib.physics.driver import (

@@ -1,4 +1,4 @@
-"""Tests of pinlib.eseries against IEC 60063 and the independent `eseries` package."""
+"""Tests of pinlib.core.eseries against IEC 60063 and the independent `eseries` package."""
 
 from __future__ import annotations
 
@@ -10,8 +10,8 @@ import pytest
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
-from pinlib import eseries as es
-from pinlib.errors import InputError
+from pinlib.core import eseries as es
+from pinlib.core.errors import InputError
 
 # ---------------------------------------------------------------------------
 # Published data

@@ -1,4 +1,4 @@
-"""pinlib.extras: a feature whose optional modules are missing names the extra to install."""
+"""pinlib.core.extras: a feature whose optional modules are missing names the extra to install."""
 
 from __future__ import annotations
 
@@ -7,8 +7,8 @@ import types
 
 import pytest
 
-from pinlib import extras
-from pinlib.errors import MissingExtraError, PinlibError
+from pinlib.core import extras
+from pinlib.core.errors import MissingExtraError, PinlibError
 
 
 def test_a_missing_module_names_the_extra_and_the_pip_command(monkeypatch):
@@ -66,7 +66,7 @@ def test_the_extras_match_pyproject():
     # every module listed here comes with the extra of that name in pyproject.toml
     from pathlib import Path
 
-    from pinlib.tomlfile import tomllib
+    from pinlib.core.tomlfile import tomllib
 
     pyproject = Path(__file__).resolve().parents[1] / "pyproject.toml"
     declared = tomllib.loads(pyproject.read_text(encoding="utf-8"))["project"][

@@ -3,7 +3,7 @@
 Design files (the demo design and small valid ones) are mutated at random by
 hypothesis -- keys deleted, values replaced by other types, random text, numbers at
 zero, negative, NaN, infinite and absurd magnitudes -- and loaded and checked: each
-run gives a result or a :class:`~pinlib.errors.PinlibError` that names the file or the
+run gives a result or a :class:`~pinlib.core.errors.PinlibError` that names the file or the
 field, never another exception and never a warning other than pinlib's own.  The same
 goes through the command line's ``main()``: exit code 0, 1 or 2 and no traceback.
 Part files are mutated the same way and run through a design that places them.
@@ -38,12 +38,12 @@ from hypothesis import strategies as st
 
 from pinlib.check import check_design
 from pinlib.cli import main
+from pinlib.core.errors import FitWarning, PinlibError, ValidityWarning, WriteError
+from pinlib.core.tomlfile import atomic_write, tomllib
 from pinlib.design import load_design
-from pinlib.errors import FitWarning, PinlibError, ValidityWarning, WriteError
 from pinlib.library import loader
 from pinlib.library.loader import load_library
 from pinlib.library.record import new_part, record_value
-from pinlib.tomlfile import atomic_write, tomllib
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"
@@ -766,7 +766,7 @@ def test_two_writers_creating_and_recording_at_once_lose_nothing(tmp_path):
 
 CREATOR = textwrap.dedent("""\
     import sys
-    from pinlib.errors import LibraryError
+    from pinlib.core.errors import LibraryError
     from pinlib.library.loader import load_library
     from pinlib.library.record import new_part
     folder, title = sys.argv[1], sys.argv[2]

@@ -26,7 +26,7 @@ import pytest
 
 from pinlib.cli import COMMANDS
 from pinlib.commands import demo
-from pinlib.tomlfile import tomllib
+from pinlib.core.tomlfile import tomllib
 
 pytestmark = pytest.mark.install
 
@@ -190,11 +190,12 @@ def test_every_command_answers_help_without_the_extras(installed):
 
 
 def test_the_extra_is_named_when_a_feature_needs_it(installed):
-    proc = installed.python("from pinlib import extras\n"
+    proc = installed.python("from pinlib.core import extras\n"
                             "extras.need('ipywidgets', extra='notebook', feature='the widgets')")
     last = proc.stderr.strip().splitlines()[-1]
     assert proc.returncode == 1
-    assert last.startswith("pinlib.errors.MissingExtraError: the widgets: the 'notebook' extra")
+    assert last.startswith("pinlib.core.errors.MissingExtraError: "
+                           "the widgets: the 'notebook' extra")
     assert last.endswith("pip install 'pinlib[notebook]'")
 
 

@@ -12,11 +12,11 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from pinlib.errors import LibraryError, PinlibError
+from pinlib.core.errors import LibraryError, PinlibError
+from pinlib.core.quantity import UNITS, parse, parse_threshold
 from pinlib.library import loader
 from pinlib.library.jsonschema import level_pattern, part_json_schema, quantity_pattern
 from pinlib.library.loader import library_folders, load_library
-from pinlib.quantity import UNITS, parse, parse_threshold
 
 BASE = """\
 format = "pinlib.part/1"
@@ -388,7 +388,7 @@ def test_fuzz_schema_pattern_implies_parse(text, unit):
 
 def test_schema_validates_part_files(builtin):
     jsonschema = pytest.importorskip("jsonschema")
-    from pinlib.tomlfile import tomllib
+    from pinlib.core.tomlfile import tomllib
 
     schema = part_json_schema()
     jsonschema.Draft202012Validator.check_schema(schema)

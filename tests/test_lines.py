@@ -11,7 +11,7 @@ import warnings
 import numpy as np
 import pytest
 
-from pinlib.errors import InputError, ValidityWarning
+from pinlib.core.errors import InputError, ValidityWarning
 from pinlib.physics import lines
 from pinlib.physics.lines import (
     C0,

@@ -1,7 +1,7 @@
-"""Every message of :mod:`pinlib.messages` triggered once, through the code a user runs.
+"""Every message of :mod:`pinlib.core.messages` triggered once, through the code a user runs.
 
 Each case builds the input that meets one problem (a design or part file, a call, a
-command line), catches the :class:`~pinlib.errors.PinlibError` and checks that its
+command line), catches the :class:`~pinlib.core.errors.PinlibError` and checks that its
 ``problem`` is the listed text, filled in where the text is a template.  A last test
 checks that every constant of the module has its case here, so a new message cannot
 be added without a test that meets it.
@@ -17,17 +17,17 @@ from pathlib import Path
 
 import pytest
 
-from pinlib import messages as M
 from pinlib.cli import main
+from pinlib.core import messages as M
+from pinlib.core.errors import PinlibError
+from pinlib.core.quantity import parse, parse_threshold
+from pinlib.core.tomlfile import atomic_write, file_lock, tomllib
+from pinlib.core.tomlfile import load as load_toml
 from pinlib.design import load_design
-from pinlib.errors import PinlibError
 from pinlib.library import loader
 from pinlib.library import record as rec
 from pinlib.library.fields import resolve_path
 from pinlib.library.loader import load_library
-from pinlib.quantity import parse, parse_threshold
-from pinlib.tomlfile import atomic_write, file_lock, tomllib
-from pinlib.tomlfile import load as load_toml
 
 HEAD = """\
 format = "pinlib.design/1"
@@ -696,9 +696,9 @@ def _(env):
 
 @case("UNKNOWN_NUMBER_SERIES")
 def _(env):
-    # one text for the design's pullup_series and for pinlib.eseries
+    # one text for the design's pullup_series and for pinlib.core.eseries
     err = _fails(lambda e: e.design(I2C_BUS + 'pullup_series = "E7"\n'), env)
-    from pinlib.eseries import nearest
+    from pinlib.core.eseries import nearest
     assert _fails(lambda e: nearest("E7", 1000.0), env).problem == err.problem
     return err
 
@@ -881,31 +881,31 @@ def _(env):
 # ---------------------------------------------------------------- engines: eseries
 @case("NOT_A_NUMBER")
 def _(env):
-    from pinlib.eseries import nearest
+    from pinlib.core.eseries import nearest
     return _fails(lambda e: nearest("E24", "many"), env)
 
 
 @case("VALUE_OUT_OF_RANGE")
 def _(env):
-    from pinlib.eseries import nearest
+    from pinlib.core.eseries import nearest
     return _fails(lambda e: nearest("E24", -1.0), env)
 
 
 @case("BOUND_NOT_SINGLE")
 def _(env):
-    from pinlib.eseries import values_in_range
+    from pinlib.core.eseries import values_in_range
     return _fails(lambda e: values_in_range("E24", [1.0, 2.0], 10.0), env)
 
 
 @case("LOWER_ABOVE_UPPER")
 def _(env):
-    from pinlib.eseries import values_in_range
+    from pinlib.core.eseries import values_in_range
     return _fails(lambda e: values_in_range("E24", 100.0, 10.0), env)
 
 
 @case("UNKNOWN_ROUNDING")
 def _(env):
-    from pinlib.eseries import nearest
+    from pinlib.core.eseries import nearest
     return _fails(lambda e: nearest("E24", 1000.0, how="cubic"), env)
 
 
@@ -1112,7 +1112,7 @@ def _er_range():
     kind="microstrip", method="hammerstad-jensen", count=1, size=1, range=_er_range().describe(),
     quantity="er", first="200", source=_er_range().source))
 def _(env):
-    from pinlib.errors import ValidityWarning
+    from pinlib.core.errors import ValidityWarning
     from pinlib.physics.lines import microstrip
     with pytest.warns(ValidityWarning) as caught:
         microstrip(0.2e-3, 0.18e-3, 200.0)
@@ -1126,7 +1126,7 @@ def _(env):
 def _(env):
     import numpy as np
 
-    from pinlib.errors import ValidityWarning
+    from pinlib.core.errors import ValidityWarning
     from pinlib.physics.waveform import distributed_response
     with pytest.warns(ValidityWarning) as caught:
         distributed_response(np.arange(40) * 1e-9, 3.3, 1e-9, 50.0, [(50.0, 1.3e-9)], 5e-12)
@@ -1167,7 +1167,7 @@ def _(env):
 
 def _fit_warnings(*args, **kw) -> str:
     """The FitWarning texts of one fit, one a line."""
-    from pinlib.errors import FitWarning
+    from pinlib.core.errors import FitWarning
     from pinlib.physics.driver import fit_driver
     with pytest.warns(FitWarning) as caught:
         fit_driver(*args, **kw)
@@ -1779,11 +1779,11 @@ def _(env):
     return env.cli("report", str(path), "--md", str(env.tmp / "none" / "r.md"))
 
 
-# ---------------------------------------------------------------- pinlib/extras.py, demo
+# ---------------------------------------------------------------- pinlib/core/extras.py, demo
 def _missing_widgets(env):
     import sys
 
-    from pinlib import extras
+    from pinlib.core import extras
 
     env.monkeypatch.setitem(sys.modules, "ipywidgets", None)  # as if not installed
     return _fails(lambda e: extras.need("ipywidgets", extra="notebook",
@@ -1936,7 +1936,7 @@ def test_every_message_has_its_case():
 
 
 def test_converted_modules_write_no_message_of_their_own():
-    # A pinlib error raised in a converted module takes its text from pinlib.messages: no
+    # A pinlib error raised in a converted module takes its text from pinlib.core.messages: no
     # string literal as the first argument of an error or warning class (or of err, or the
     # problem of _fail).  Matched over the whole source, so a call whose text starts on
     # the next line is caught as well.
@@ -1948,7 +1948,7 @@ def test_converted_modules_write_no_message_of_their_own():
                      r"|_fail\(text, unit, field, \s*f?[\"']")
     for name in M.MODULES:
         source = inspect.getsource(importlib.import_module(name))
-        # ValueError is left to a program calling pinlib wrongly (see pinlib.messages)
+        # ValueError is left to a program calling pinlib wrongly (see pinlib.core.messages)
         hits = [(source.count("\n", 0, m.start()) + 1, m.group(0).split("(")[0])
                 for m in own.finditer(source) if not m.group(0).startswith("ValueError")]
         assert not hits, (name, hits)

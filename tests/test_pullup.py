@@ -8,7 +8,7 @@ import numpy as np
 import pytest
 from spice import have_ngspice, run_deck
 
-from pinlib.errors import InputError
+from pinlib.core.errors import InputError
 from pinlib.physics import pullup as pu
 from pinlib.physics.rc import RISE_10_90, RISE_30_70
 

@@ -33,8 +33,8 @@ from pinlib.buses.pushline import (
     stretches_of,
 )
 from pinlib.buses.pushpull import evaluate_bus
+from pinlib.core.errors import DesignError, InputError
 from pinlib.design import Device, Line, Section, load_design
-from pinlib.errors import DesignError, InputError
 from pinlib.library import load_library
 from pinlib.physics import rc
 from pinlib.physics.driver import driver_from_pin

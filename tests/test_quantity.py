@@ -9,8 +9,8 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from pinlib.errors import UnitError
-from pinlib.quantity import UNITS, Threshold, format_si, parse, parse_ratio, parse_threshold
+from pinlib.core.errors import UnitError
+from pinlib.core.quantity import UNITS, Threshold, format_si, parse, parse_ratio, parse_threshold
 
 # One inch is 25.4 mm and one mil a thousandth of it.
 INCH = 25.4e-3  # published: international yard and pound agreement (1959), 1 in = 25.4 mm

@@ -6,7 +6,7 @@ import numpy as np
 import pytest
 from spice import have_ngspice, run_deck, run_waveform
 
-from pinlib.errors import InputError
+from pinlib.core.errors import InputError
 from pinlib.physics import rc
 
 needs_ngspice = pytest.mark.skipif(not have_ngspice(), reason="ngspice not on PATH")

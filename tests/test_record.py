@@ -14,11 +14,11 @@ from pathlib import Path
 
 import pytest
 
-from pinlib.errors import InputError, LibraryError, WriteError
+from pinlib.core.errors import InputError, LibraryError, WriteError
+from pinlib.core.tomlfile import tomllib
 from pinlib.library import loader
 from pinlib.library.loader import load_library
 from pinlib.library.record import new_part, record_value
-from pinlib.tomlfile import tomllib
 
 BASE = """\
 format = "pinlib.part/1"

@@ -402,7 +402,7 @@ def test_timing_budget_agrees_with_the_result(demo):
 
 
 def test_plotdata_refuses_the_wrong_bus(demo):
-    from pinlib.errors import InputError
+    from pinlib.core.errors import InputError
 
     design, _ = demo
     with pytest.raises(InputError, match="pull-up window"):

@@ -18,8 +18,8 @@ import pytest
 from pinlib.buses import spi
 from pinlib.buses.pushline import EDGE_FRACTION, endpoint
 from pinlib.buses.pushpull import evaluate_bus
+from pinlib.core.errors import InputError
 from pinlib.design import load_design
-from pinlib.errors import InputError
 
 DATA = Path(__file__).parent / "data" / "pushpull"
 

@@ -9,7 +9,7 @@ import numpy as np
 import pytest
 
 import pinlib.standards as standards
-from pinlib.errors import InputError
+from pinlib.core.errors import InputError
 from pinlib.standards import i2c, jedec, smbus
 
 US, NS, PF, MA, UA, KHZ = 1e-6, 1e-9, 1e-12, 1e-3, 1e-6, 1e3

@@ -10,7 +10,7 @@ import numpy as np
 import pytest
 from spice import have_ngspice, run_deck, run_waveform
 
-from pinlib.errors import InputError, ValidityWarning
+from pinlib.core.errors import InputError, ValidityWarning
 from pinlib.physics import rc
 from pinlib.physics import waveform as wf
 

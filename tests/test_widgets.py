@@ -36,10 +36,10 @@ pytest.importorskip("vl_convert")
 
 from pinlib import charts  # noqa: E402
 from pinlib.check import check_design, check_file  # noqa: E402
+from pinlib.core.errors import DesignError, InputError  # noqa: E402
+from pinlib.core.tomlfile import tomllib  # noqa: E402
 from pinlib.design import design_from_text, load_design  # noqa: E402
-from pinlib.errors import DesignError, InputError  # noqa: E402
 from pinlib.library import load_library  # noqa: E402
-from pinlib.tomlfile import tomllib  # noqa: E402
 from pinlib.widgets import (  # noqa: E402
     BusBuilder,
     LineExplorer,

@@ -5,7 +5,7 @@ position just changed.
 * Every widget of every workbench has its own ``Layout`` (and its own style): hiding one
   control (the trace panel hides the fields its geometry does not use) can hide nothing
   else.
-* A quantity typed into a field is read by :func:`pinlib.quantity.parse`; a refused text
+* A quantity typed into a field is read by :func:`pinlib.core.quantity.parse`; a refused text
   shows its error under the field, the panel is not recomputed (figures, charts and the
   count of updates stay as they were) and a notice says so; a valid text recomputes.
 * A selection the filters no longer allow is kept and the note under it says why; a
@@ -28,7 +28,7 @@ pytest.importorskip("vl_convert")
 
 import ipywidgets as W  # noqa: E402
 
-from pinlib.errors import InputError  # noqa: E402
+from pinlib.core.errors import InputError  # noqa: E402
 from pinlib.library import load_library  # noqa: E402
 from pinlib.widgets import (  # noqa: E402
     BusBuilder,

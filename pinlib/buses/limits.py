@@ -16,11 +16,11 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from pinlib import messages as M
-from pinlib.errors import DesignError
+from pinlib.core import messages as M
+from pinlib.core.errors import DesignError
+from pinlib.core.quantity import Threshold
 from pinlib.library.values import Sourced
 from pinlib.physics.rc import RISE_30_70
-from pinlib.quantity import Threshold
 from pinlib.standards import i2c as i2c_std
 from pinlib.standards import smbus as smbus_std
 

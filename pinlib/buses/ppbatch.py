@@ -69,7 +69,7 @@ def parameter_specs(bus: Bus) -> list[tuple]:
         One per toleranced quantity, each key once (a rail shared with other buses
         carries the same key as in :mod:`pinlib.whatif`). [1]
     """
-    from pinlib.quantity import format_si
+    from pinlib.core.quantity import format_si
 
     out, seen = [], set()
 

@@ -363,9 +363,9 @@ def tabulate(bus: Bus, design: Design, axes: list[Axis],
     resistors : dict
         Series resistors fixed for "auto" lines (``ppbatch.chosen_resistors``). [Ω]
     progress : bool, callable or None, optional
-        A bar over the engine evaluations (see :func:`pinlib.progress.progress_bar`). [1]
+        A bar over the engine evaluations (see :func:`pinlib.core.progress.progress_bar`). [1]
     """
-    from pinlib.progress import progress_bar
+    from pinlib.core.progress import progress_bar
 
     grids = [ax.nodes() for ax in axes]
     shape = tuple(g.size for g in grids)

@@ -62,16 +62,16 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from pinlib import eseries
-from pinlib import messages as M
+from pinlib.core import eseries
+from pinlib.core import messages as M
+from pinlib.core.errors import DesignError, InputError
+from pinlib.core.quantity import format_si
 from pinlib.design import Bus, Device, Line, Section
-from pinlib.errors import DesignError, InputError
 from pinlib.library.schema import Pin
 from pinlib.physics import driver as drv
 from pinlib.physics import lines as tl
 from pinlib.physics import rc
 from pinlib.physics import waveform as wf
-from pinlib.quantity import format_si
 from pinlib.result import Check, LineResult, check_max, check_min
 
 __all__ = [

@@ -25,11 +25,11 @@ from __future__ import annotations
 
 from dataclasses import replace
 
-from pinlib import messages as M
 from pinlib.buses.pushline import Endpoint, analyse_line, device_supply
 from pinlib.buses.spi import evaluate_spi
+from pinlib.core import messages as M
+from pinlib.core.errors import DesignError, InputError
 from pinlib.design import Bus, Design, Device
-from pinlib.errors import DesignError, InputError
 from pinlib.library.schema import Pin
 from pinlib.result import BusResult, Check
 

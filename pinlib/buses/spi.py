@@ -77,7 +77,6 @@ from typing import NamedTuple
 
 import numpy as np
 
-from pinlib import messages as M
 from pinlib.buses.pushline import (
     EDGE_FRACTION,
     SIGNAL_FUNCTION,
@@ -86,9 +85,10 @@ from pinlib.buses.pushline import (
     endpoint,
     is_bridge,
 )
+from pinlib.core import messages as M
+from pinlib.core.errors import DesignError, InputError
+from pinlib.core.quantity import format_si
 from pinlib.design import Bus, Design, Device, Line
-from pinlib.errors import DesignError, InputError
-from pinlib.quantity import format_si
 from pinlib.result import BusResult, check_max, check_min
 
 __all__ = [

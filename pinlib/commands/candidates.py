@@ -6,7 +6,7 @@ import argparse
 import json
 import sys
 
-from pinlib import messages as M
+from pinlib.core import messages as M
 
 __all__ = ["add_parser", "run"]
 

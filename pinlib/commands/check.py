@@ -6,7 +6,7 @@ import argparse
 import json
 import sys
 
-from pinlib import messages as M
+from pinlib.core import messages as M
 
 __all__ = ["add_parser", "run"]
 
@@ -98,7 +98,7 @@ def run(args) -> int:
 
     design = load_design(args.design, library_folders=args.library)
     if getattr(args, "seed", None) is not None and getattr(args, "monte_carlo", None) is None:
-        from pinlib.errors import InputError
+        from pinlib.core.errors import InputError
 
         raise InputError(M.SEED_WITHOUT_MONTE_CARLO, field="--seed", value=args.seed,
                          hint="add --monte-carlo N")

@@ -14,8 +14,8 @@ import argparse
 import shlex
 from pathlib import Path
 
-from pinlib import messages as M
-from pinlib.errors import InputError, WriteError
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError, WriteError
 
 __all__ = ["add_parser", "run", "source_folder", "demo_files", "DEFAULT_FOLDER"]
 
@@ -76,8 +76,8 @@ def demo_files(source: Path) -> list[Path]:
 
 
 def run(args) -> int:
-    from pinlib import extras
-    from pinlib.tomlfile import atomic_write
+    from pinlib.core import extras
+    from pinlib.core.tomlfile import atomic_write
 
     source = source_folder()
     folder = Path(args.folder)

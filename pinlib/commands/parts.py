@@ -12,8 +12,8 @@ import os
 import sys
 from pathlib import Path
 
-from pinlib import messages as M
-from pinlib.errors import InputError
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
 
 __all__ = ["add_parser", "run"]
 
@@ -190,7 +190,7 @@ def _supplies(part) -> list[tuple[str, object]]:
 
 
 def _range_text(supply) -> str:
-    from pinlib.quantity import format_si
+    from pinlib.core.quantity import format_si
 
     lo, hi = format_si(supply.min.value, "V"), format_si(supply.max.value, "V")
     return f"{lo.removesuffix(' V')}-{hi}" if lo.endswith(" V") and hi.endswith(" V") else \
@@ -227,8 +227,8 @@ def _rel(path) -> str:
 # --- list ------------------------------------------------------------------------------
 
 def _run_list(args) -> int:
+    from pinlib.core.quantity import parse
     from pinlib.library.schema import CATEGORIES, FUNCTIONS
-    from pinlib.quantity import parse
 
     _choice(args.category, CATEGORIES, "--category")
     _choice(args.function, FUNCTIONS, "--function")
@@ -302,9 +302,9 @@ _HEADER_FIELDS = {"format", "id", "title", "category", "extends", "abstract", "d
 
 
 def _show_data(lib, pid) -> dict:
+    from pinlib.core.quantity import Threshold
+    from pinlib.core.tomlfile import dotted
     from pinlib.library.values import Sourced
-    from pinlib.quantity import Threshold
-    from pinlib.tomlfile import dotted
 
     part = lib.get(pid)
     values, attributes = [], []
@@ -365,7 +365,7 @@ def _show_data(lib, pid) -> dict:
 
 
 def _typ_text(entry) -> str:
-    from pinlib.quantity import format_si
+    from pinlib.core.quantity import format_si
 
     typ = entry["typ"]
     if typ is None:
@@ -374,7 +374,7 @@ def _typ_text(entry) -> str:
 
 
 def _run_show(args) -> int:
-    from pinlib.quantity import format_si
+    from pinlib.core.quantity import format_si
 
     lib = _load(args)
     data = _show_data(lib, args.id)
@@ -486,7 +486,7 @@ def _under(path, folder: Path) -> bool:
 
 
 def _run_check(args) -> int:
-    from pinlib.errors import LibraryError
+    from pinlib.core.errors import LibraryError
 
     if args.folder is None:
         lib = _load(args)
@@ -529,8 +529,8 @@ def _run_check(args) -> int:
 # --- schema ----------------------------------------------------------------------------
 
 def _run_schema(args) -> int:
+    from pinlib.core.tomlfile import atomic_write
     from pinlib.library.jsonschema import part_json_schema
-    from pinlib.tomlfile import atomic_write
 
     text = json.dumps(part_json_schema(), indent=2, ensure_ascii=False) + "\n"
     if args.output:

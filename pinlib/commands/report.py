@@ -12,7 +12,7 @@ import argparse
 import sys
 from pathlib import Path
 
-from pinlib import messages as M
+from pinlib.core import messages as M
 
 __all__ = ["add_parser", "run", "chart_dir_for", "MONTE_CARLO_MODULES"]
 
@@ -98,7 +98,7 @@ def _monte_carlo(design, n: int, seed: int | None):
     """
     import importlib
 
-    from pinlib.errors import InputError
+    from pinlib.core.errors import InputError
 
     for name in MONTE_CARLO_MODULES:
         try:
@@ -119,10 +119,10 @@ def _monte_carlo(design, n: int, seed: int | None):
 def run(args) -> int:
     from pinlib.check import check_design
     from pinlib.compare import DEFAULT_THRESHOLD, compare_with_snapshot
+    from pinlib.core.errors import InputError
+    from pinlib.core.tomlfile import atomic_write
     from pinlib.design import load_design
-    from pinlib.errors import InputError
     from pinlib.review import build_review
-    from pinlib.tomlfile import atomic_write
 
     if args.seed is not None and args.monte_carlo is None:
         raise InputError(M.SEED_WITHOUT_MONTE_CARLO, field="--seed", value=args.seed,
@@ -153,7 +153,7 @@ def run(args) -> int:
             try:
                 (target.parent / folder).mkdir(exist_ok=True)
             except OSError as exc:
-                from pinlib.errors import WriteError
+                from pinlib.core.errors import WriteError
 
                 raise WriteError(M.CANNOT_CREATE_FOLDER.format(reason=exc.strerror),
                                  file=str(target.parent / folder)) from None

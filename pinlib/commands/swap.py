@@ -17,7 +17,7 @@ import json
 import re
 import sys
 
-from pinlib import messages as M
+from pinlib.core import messages as M
 
 __all__ = ["add_parser", "run", "threshold_type", "parse_assignments"]
 
@@ -43,7 +43,7 @@ _ASSIGN = re.compile(r"^\s*([^=\s]+)\s*=\s*([a-z0-9][a-z0-9-]*)\s*$")
 def threshold_type(text: str) -> float:
     """An argparse type for ``--threshold``: ``5%`` or ``"5 %"`` -> 0.05."""
     from pinlib.compare import parse_change_threshold
-    from pinlib.errors import PinlibError
+    from pinlib.core.errors import PinlibError
 
     try:
         return parse_change_threshold(text)
@@ -79,7 +79,7 @@ def add_parser(sub) -> None:
 
 def parse_assignments(items) -> dict[str, str]:
     """``["U4=eeprom-hicap", ...]`` -> ``{"U4": "eeprom-hicap"}``."""
-    from pinlib.errors import InputError
+    from pinlib.core.errors import InputError
 
     out: dict[str, str] = {}
     for item in items:
@@ -139,10 +139,10 @@ def run(args) -> int:
         snapshot,
         swapped_text,
     )
+    from pinlib.core.errors import WriteError
+    from pinlib.core.tomlfile import atomic_write, file_lock
     from pinlib.design import load_design
-    from pinlib.errors import WriteError
     from pinlib.result import CAUTION
-    from pinlib.tomlfile import atomic_write, file_lock
 
     threshold = DEFAULT_THRESHOLD if args.threshold is None else args.threshold
     swaps = parse_assignments(args.swaps)

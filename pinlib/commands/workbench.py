@@ -29,8 +29,8 @@ import urllib.request
 from pathlib import Path
 from urllib.parse import quote
 
-from pinlib import messages as M
-from pinlib.errors import InputError, PinlibError
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError, PinlibError
 
 __all__ = ["add_parser", "run", "workbook_folder", "free_port", "DEFAULT_PORT", "HOST"]
 
@@ -189,7 +189,7 @@ def _stop(proc: subprocess.Popen, timeout: float = 15.0) -> None:
 
 
 def run(args) -> int:
-    from pinlib import extras
+    from pinlib.core import extras
 
     folder = workbook_folder(args.folder)
     for module in ("voila", "ipywidgets", "ipykernel"):

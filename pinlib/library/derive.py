@@ -17,9 +17,9 @@ before placing the part.
 
 from __future__ import annotations
 
+from pinlib.core.quantity import format_si
 from pinlib.library.schema import Part, Pin
 from pinlib.library.values import Sourced
-from pinlib.quantity import format_si
 
 __all__ = ["derived_values"]
 

@@ -5,7 +5,7 @@ JSON Schema export needs the unit of each of them.  Both are read here from the 
 in :mod:`pinlib.library.schema` rather than kept in a second list that could drift: a
 value field is one whose validator turns text into a
 :class:`~pinlib.library.values.Sourced`, and its unit is found by offering the
-validator one example of each unit of :data:`pinlib.quantity.UNITS`.
+validator one example of each unit of :data:`pinlib.core.quantity.UNITS`.
 """
 
 from __future__ import annotations
@@ -18,11 +18,11 @@ from dataclasses import dataclass
 
 from pydantic import BaseModel, BeforeValidator
 
-from pinlib import messages as M
-from pinlib.errors import LibraryError, PinlibError
+from pinlib.core import messages as M
+from pinlib.core.errors import LibraryError, PinlibError
+from pinlib.core.quantity import UNITS, Threshold
 from pinlib.library import schema
 from pinlib.library.values import Sourced
-from pinlib.quantity import UNITS, Threshold
 
 __all__ = [
     "ValueKind",

@@ -4,7 +4,7 @@ pydantic's own export describes each value field by the Python object it becomes
 (:class:`~pinlib.library.values.Sourced`), not by what a file holds.  We start from it
 (for the structure, the enums and the id pattern) and rewrite every value field as
 what the file may say: a string with its unit, matched by a pattern built from the
-spellings :mod:`pinlib.quantity` accepts, or a provenance table
+spellings :mod:`pinlib.core.quantity` accepts, or a provenance table
 ``{ value, basis, source, typ }``.
 
 A child file (one with ``extends``) may give any subset of its parent's fields, so the
@@ -17,10 +17,10 @@ from __future__ import annotations
 import copy
 import re
 
+from pinlib.core.quantity import _LENGTH, _PREFIX, _UNIT_ALIAS, UNITS
 from pinlib.library import schema
 from pinlib.library.fields import glossary, mapping_of, models, sequence_of, submodel, value_kind
 from pinlib.library.values import BASES
-from pinlib.quantity import _LENGTH, _PREFIX, _UNIT_ALIAS, UNITS
 
 __all__ = ["SCHEMA_DIALECT", "part_json_schema", "quantity_pattern", "level_pattern"]
 
@@ -54,7 +54,7 @@ def _unit_regex(unit: str) -> str:
 def quantity_pattern(unit: str) -> str:
     """A regular expression (ECMA-262 compatible) for a value in ``unit``.
 
-    It follows :func:`pinlib.quantity.parse`: a number with a prefixed unit
+    It follows :func:`pinlib.core.quantity.parse`: a number with a prefixed unit
     (``"4.7 kΩ"``, ``"10pF"``, ``"0.8 pF/cm"``) or an RKM code (``"4k7"``, ``"2R2"``).
     """
     if "/" in unit:

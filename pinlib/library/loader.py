@@ -21,12 +21,12 @@ from pathlib import Path
 
 from pydantic import BaseModel, ValidationError
 
-from pinlib import messages as M
-from pinlib.errors import LibraryError, PinlibError
+from pinlib.core import messages as M
+from pinlib.core.errors import LibraryError, PinlibError
+from pinlib.core.tomlfile import dotted as dotted_path
+from pinlib.core.tomlfile import line_index, line_of, load
 from pinlib.library.schema import FORMAT, Part
 from pinlib.library.values import Sourced
-from pinlib.tomlfile import dotted as dotted_path
-from pinlib.tomlfile import line_index, line_of, load
 
 __all__ = [
     "LazyParts",

@@ -1,9 +1,9 @@
 """Writing to team part files: a new part that extends a class, and one recorded value.
 
-Both write through :func:`pinlib.tomlfile.atomic_write` (a temporary file in the same
+Both write through :func:`pinlib.core.tomlfile.atomic_write` (a temporary file in the same
 folder, then one ``os.replace``), so a reader, or a process killed half-way, sees the
 old file or the new one and never a truncated one.  :func:`record_value` holds
-:func:`pinlib.tomlfile.file_lock` from reading the file to replacing it, and reads the
+:func:`pinlib.core.tomlfile.file_lock` from reading the file to replacing it, and reads the
 file afresh inside the lock, so two processes recording into one file at once take
 turns and neither loses the other's value.
 
@@ -26,12 +26,12 @@ from pathlib import Path
 import tomlkit
 from tomlkit.items import InlineTable, Table
 
-from pinlib import messages as M
-from pinlib.errors import InputError, LibraryError, PinlibError, WriteError
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError, LibraryError, PinlibError, WriteError
+from pinlib.core.tomlfile import atomic_write, file_lock, line_index, line_of
 from pinlib.library import loader
 from pinlib.library.fields import resolve_path
 from pinlib.library.schema import FORMAT
-from pinlib.tomlfile import atomic_write, file_lock, line_index, line_of
 
 if sys.version_info >= (3, 11):
     import tomllib

@@ -36,7 +36,7 @@ from typing import Annotated, Literal
 
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, field_validator, model_validator
 
-from pinlib import messages as M
+from pinlib.core import messages as M
 from pinlib.library.values import Sourced, sourced_parser, threshold_parser
 
 __all__ = [

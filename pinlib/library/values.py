@@ -3,7 +3,7 @@
 A value in a part file is either a plain string with its unit (``"8 pF"``) or a table
 ``{ value = "8 pF", basis = "datasheet", source = "rev C, table 7.5", typ = "5 pF" }``.
 Either way it becomes a :class:`Sourced`: the SI value (a float, or a
-:class:`~pinlib.quantity.Threshold` for levels that may follow the supply) with its
+:class:`~pinlib.core.quantity.Threshold` for levels that may follow the supply) with its
 basis, its source, the typical value when one was given, whether pinlib derived it,
 and which part file it was set in (for values inherited through ``extends``).
 """
@@ -13,9 +13,9 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Any
 
-from pinlib import messages as M
-from pinlib.errors import UnitError
-from pinlib.quantity import Threshold, format_si, parse, parse_threshold
+from pinlib.core import messages as M
+from pinlib.core.errors import UnitError
+from pinlib.core.quantity import Threshold, format_si, parse, parse_threshold
 
 __all__ = ["BASES", "Sourced", "sourced_parser", "threshold_parser"]
 

@@ -26,8 +26,8 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
-from pinlib import messages as M
-from pinlib.errors import FitWarning, InputError
+from pinlib.core import messages as M
+from pinlib.core.errors import FitWarning, InputError
 from pinlib.physics import rc
 
 __all__ = [

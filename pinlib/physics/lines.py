@@ -22,8 +22,8 @@ from typing import NamedTuple
 
 import numpy as np
 
-from pinlib import messages as M
-from pinlib.errors import InputError, ValidityWarning
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError, ValidityWarning
 
 __all__ = [
     "C0",

@@ -24,8 +24,8 @@ from typing import NamedTuple
 
 import numpy as np
 
-from pinlib import messages as M
-from pinlib.errors import InputError
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
 from pinlib.physics.rc import RISE_10_90, RISE_30_70
 
 __all__ = [

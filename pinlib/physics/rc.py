@@ -14,8 +14,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from pinlib import messages as M
-from pinlib.errors import InputError
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
 
 __all__ = [
     "RISE_30_70",

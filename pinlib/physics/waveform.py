@@ -28,8 +28,8 @@ from typing import NamedTuple
 
 import numpy as np
 
-from pinlib import messages as M
-from pinlib.errors import InputError, ValidityWarning
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError, ValidityWarning
 from pinlib.physics.rc import ramp_rc_response
 
 __all__ = [

@@ -19,8 +19,8 @@ from types import MappingProxyType
 
 import numpy as np
 
-from pinlib import messages as M
-from pinlib.errors import InputError
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
 from pinlib.standards.lookup import by_name
 
 __all__ = [
@@ -214,7 +214,7 @@ class I2cMode:
 
         Raises
         ------
-        pinlib.errors.InputError
+        pinlib.core.errors.InputError
             For a name that is not a limit of this class.
         """
         limits = [f.name for f in fields(self) if f.name not in _META_FIELDS]
@@ -470,7 +470,7 @@ def i2c_mode(name: str) -> I2cMode:
 
     Raises
     ------
-    pinlib.errors.InputError
+    pinlib.core.errors.InputError
         For an unknown name; the message lists the valid names.
 
     Examples
@@ -505,7 +505,7 @@ def sink_spec(mode, vdd):
 
     Raises
     ------
-    pinlib.errors.InputError
+    pinlib.core.errors.InputError
         For an unknown mode or a supply that is not positive and finite.
 
     Notes

@@ -19,8 +19,8 @@ from types import MappingProxyType
 
 import numpy as np
 
-from pinlib import messages as M
-from pinlib.errors import InputError
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
 from pinlib.standards.lookup import by_name
 
 __all__ = [
@@ -301,7 +301,7 @@ def logic_levels(name: str) -> LogicLevels:
 
     Raises
     ------
-    pinlib.errors.InputError
+    pinlib.core.errors.InputError
         For an unknown name; the message lists the valid names.
 
     Examples

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
 
-from pinlib.errors import InputError
+from pinlib.core.errors import InputError
 
 __all__ = ["by_name"]
 

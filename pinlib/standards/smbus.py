@@ -22,8 +22,8 @@ from types import MappingProxyType
 
 import numpy as np
 
-from pinlib import messages as M
-from pinlib.errors import InputError
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
 from pinlib.standards.lookup import by_name
 
 __all__ = [
@@ -165,7 +165,7 @@ class SmbusClass:
 
         Raises
         ------
-        pinlib.errors.InputError
+        pinlib.core.errors.InputError
             For a name that is not a limit of this class.
         """
         limits = [f.name for f in fields(self) if f.name not in _META_FIELDS]
@@ -362,7 +362,7 @@ def smbus_class(name: str) -> SmbusClass:
 
     Raises
     ------
-    pinlib.errors.InputError
+    pinlib.core.errors.InputError
         For an unknown name; the message lists the valid names.
 
     Examples
@@ -431,7 +431,7 @@ def rise_rc_factor(cls, vdd):
 
     Raises
     ------
-    pinlib.errors.InputError
+    pinlib.core.errors.InputError
         For a supply that is not finite or does not exceed v_hi (the edge would
         never reach the upper point).
 

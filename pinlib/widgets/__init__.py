@@ -42,7 +42,7 @@ This package imports ipywidgets, and altair through :mod:`pinlib.charts`; the co
 and :mod:`pinlib.check` never import it.
 """
 
-from pinlib.extras import need
+from pinlib.core.extras import need
 
 # without the notebook extra, say which one to install (not a bare ModuleNotFoundError);
 # the imports below come after this check on purpose

@@ -11,14 +11,14 @@ import ipywidgets as W
 import tomlkit
 
 from pinlib import charts, plotdata
-from pinlib import messages as M
 from pinlib.check import check_design
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError, PinlibError
+from pinlib.core.quantity import format_si
+from pinlib.core.tomlfile import atomic_write, tomllib
 from pinlib.design import MODES, design_from_text
-from pinlib.errors import InputError, PinlibError
 from pinlib.library import load_library
 from pinlib.library.loader import Library
-from pinlib.quantity import format_si
-from pinlib.tomlfile import atomic_write, tomllib
 from pinlib.widgets.common import (
     ChartView,
     QuantityField,

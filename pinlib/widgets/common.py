@@ -14,7 +14,7 @@ a full-width row under both columns.
 Quantities
 ----------
 A value with a unit is typed into a :class:`QuantityField` and read by
-:func:`pinlib.quantity.parse` ("4.7 kΩ" is refused where a voltage belongs, a bare number
+:func:`pinlib.core.quantity.parse` ("4.7 kΩ" is refused where a voltage belongs, a bare number
 is refused for its missing unit, a value outside the field's range is refused and never
 clamped).  The refusal is shown under the field and the panel does not recompute: what it
 shows stays that of the last valid inputs, and a notice above the figures says so.
@@ -32,10 +32,10 @@ from pathlib import Path
 import ipywidgets as W
 
 from pinlib import charts
-from pinlib import messages as M
-from pinlib.errors import InputError, PinlibError
-from pinlib.eseries import values_in_range
-from pinlib.quantity import format_si, parse
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError, PinlibError
+from pinlib.core.eseries import values_in_range
+from pinlib.core.quantity import format_si, parse
 from pinlib.widgets.markup import (
     caution_html,
     e,
@@ -131,7 +131,7 @@ def _shown(value: float | None, unit: str, shown: tuple[str, float] | None) -> s
 
 
 class QuantityField:
-    """A text box for a value with its unit, read by :func:`pinlib.quantity.parse`.
+    """A text box for a value with its unit, read by :func:`pinlib.core.quantity.parse`.
 
     Parameters
     ----------
@@ -140,7 +140,7 @@ class QuantityField:
     description : str
         The label in front of the box.
     unit : str
-        The SI unit expected (a key of :data:`pinlib.quantity.UNITS`); ``""`` for a plain
+        The SI unit expected (a key of :data:`pinlib.core.quantity.UNITS`); ``""`` for a plain
         number.
     value : float or None
         The first value. [SI]

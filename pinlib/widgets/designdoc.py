@@ -8,10 +8,10 @@ from pathlib import Path
 import ipywidgets as W
 import tomlkit
 
+from pinlib.core.tomlfile import tomllib
 from pinlib.design import FORMAT as DESIGN_FORMAT
 from pinlib.design import Design, design_from_text
 from pinlib.library.loader import BUILTIN_DIR, Library
-from pinlib.tomlfile import tomllib
 from pinlib.widgets.common import (
     QuantityField,
     _num,

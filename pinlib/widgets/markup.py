@@ -14,7 +14,7 @@ import math
 import re
 
 from pinlib import charts, labels
-from pinlib.errors import PinlibError
+from pinlib.core.errors import PinlibError
 from pinlib.report import format_value
 from pinlib.result import CAUTION, BusResult, Group
 

@@ -8,8 +8,8 @@ from pathlib import Path
 
 import ipywidgets as W
 
-from pinlib import messages as M
-from pinlib.errors import InputError, LibraryError, PinlibError
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError, LibraryError, PinlibError
 from pinlib.library import load_library
 from pinlib.library.loader import Library
 from pinlib.widgets.common import (
@@ -197,8 +197,8 @@ class PartRecorder(_Panel):
     def _check_value(self, errors: dict | None = None) -> dict:
         """Check the field path and the value's unit as they are typed, before anything
         is written; return the errors shown beside the record form's fields."""
+        from pinlib.core.quantity import parse, parse_threshold
         from pinlib.library.fields import resolve_path
-        from pinlib.quantity import parse, parse_threshold
 
         errors = {k: v for k, v in (self.errors if errors is None else errors).items()
                   if k not in ("field", "value", "typ")}

@@ -9,14 +9,14 @@ from dataclasses import dataclass
 import ipywidgets as W
 
 from pinlib import charts, plotdata
-from pinlib import messages as M
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError, PinlibError
+from pinlib.core.quantity import format_si
+from pinlib.core.tomlfile import tomllib
 from pinlib.design import Design, design_from_text, load_design
-from pinlib.errors import InputError, PinlibError
 from pinlib.labels import check_label
-from pinlib.quantity import format_si
 from pinlib.report import format_value
 from pinlib.result import BusResult
-from pinlib.tomlfile import tomllib
 from pinlib.widgets.common import (
     ChartView,
     QuantityField,

@@ -12,8 +12,8 @@ from __future__ import annotations
 import tempfile
 from pathlib import Path
 
+from pinlib.core.tomlfile import tomllib
 from pinlib.library.loader import load_library
-from pinlib.tomlfile import tomllib
 from tests.bench.common import Result, median_time
 from tests.bench.generate import write_parts
 

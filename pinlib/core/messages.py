@@ -1,6 +1,6 @@
 """Every problem a user can meet, in one place.
 
-Most constants are the ``problem`` of a :class:`~pinlib.errors.PinlibError`: the words
+Most constants are the ``problem`` of a :class:`~pinlib.core.errors.PinlibError`: the words
 that say what is wrong.  The error adds where (file, line, field), the value that was
 given, what was expected and a hint, so these texts stay short and need no location.
 A constant with ``{placeholders}`` is a template, filled with ``str.format``::
@@ -38,7 +38,7 @@ UNKNOWN_BASIS = "unknown basis"
 NOT_A_FOLDER = "not a folder"
 NO_SUCH_REFERENCE = "no device with this reference"
 
-# ---------------------------------------------------------------- pinlib/tomlfile.py
+# ---------------------------------------------------------------- pinlib/core/tomlfile.py
 FILE_NOT_FOUND = "file not found"
 NOT_UTF8 = "not UTF-8 text"
 CANNOT_READ = "cannot read the file: {reason}"
@@ -47,7 +47,7 @@ CANNOT_LOCK = "cannot lock the file: {reason}"
 CANNOT_WRITE_IN_FOLDER = "cannot write in this folder: {reason}"
 CANNOT_WRITE_FILE = "cannot write the file: {reason}"
 
-# ---------------------------------------------------------------- pinlib/quantity.py
+# ---------------------------------------------------------------- pinlib/core/quantity.py
 YES_NO_AS_QUANTITY = "a yes/no value where a quantity belongs"
 BARE_NUMBER = "a bare number has no unit"
 TYPE_AS_QUANTITY = "a {type} where a quantity belongs"
@@ -154,7 +154,7 @@ CABLE_NOT_PLACED = "{part} is a cable class; it belongs in cables or a line's se
 DESIGN_NOT_CHANGED = "{path} was not changed"
 
 # ---------------------------------------------------------------- engines: plain numbers
-# shared by pinlib/standards/*, pinlib/eseries.py and pinlib/physics/*
+# shared by pinlib/standards/*, pinlib/core/eseries.py and pinlib/physics/*
 NOT_A_NUMBER = "not a number"
 MUST_BE_FINITE_NON_NEGATIVE = "value must be finite and not negative"
 UPPER_NOT_ABOVE_LOWER = "upper level must be above the lower level"
@@ -166,7 +166,7 @@ UNKNOWN_LOGIC_LEVELS = "unknown logic-level set"
 UNKNOWN_SMBUS_CLASS = "unknown SMBus class"
 NOT_AN_SMBUS_LIMIT = "not an SMBus class limit"
 SUPPLY_BELOW_SMBUS_POINTS = "supply too low for the SMBus rise-time points"
-# pinlib/eseries.py
+# pinlib/core/eseries.py
 UNKNOWN_NUMBER_SERIES = "unknown preferred-number series"
 VALUE_OUT_OF_RANGE = "value out of range"
 BOUND_NOT_SINGLE = "bound must be a single number"
@@ -330,7 +330,7 @@ MONTE_CARLO_UNAVAILABLE = "the Monte Carlo engine is not available in this pinli
 REPORT_TARGET_IS_FOLDER = "the report target is a folder"
 REPORT_FOLDER_MISSING = "the report's folder does not exist"
 
-# ---------------------------------------------------------------- pinlib/extras.py, demo
+# ---------------------------------------------------------------- pinlib/core/extras.py, demo
 NEEDS_EXTRA = "{feature}: the '{extra}' extra of pinlib is not installed ({module} is missing)"
 INSTALL_EXTRA = "install it with: pip install 'pinlib[{extra}]'"
 DEMO_FILES_MISSING = "the demo files are not part of this installation of pinlib"
@@ -349,8 +349,8 @@ SERVER_OUTPUT_HINT = "its own messages are above"
 
 #: The modules whose raise sites, warnings and report sentences take their texts from here.
 MODULES = (
-    "pinlib.tomlfile",
-    "pinlib.quantity",
+    "pinlib.core.tomlfile",
+    "pinlib.core.quantity",
     "pinlib.library.loader",
     "pinlib.library.schema",
     "pinlib.library.values",
@@ -362,7 +362,7 @@ MODULES = (
     "pinlib.standards.i2c",
     "pinlib.standards.jedec",
     "pinlib.standards.smbus",
-    "pinlib.eseries",
+    "pinlib.core.eseries",
     "pinlib.physics.rc",
     "pinlib.physics.pullup",
     "pinlib.physics.waveform",
@@ -391,7 +391,7 @@ MODULES = (
     "pinlib.commands.candidates",
     "pinlib.commands.demo",
     "pinlib.commands.workbench",
-    "pinlib.extras",
+    "pinlib.core.extras",
 )
 
 

@@ -137,7 +137,7 @@ class MissingExtraError(PinlibError, ModuleNotFoundError):
     """A feature needs an optional part of pinlib that is not installed.
 
     The message names the extra to install (``pip install 'pinlib[notebook]'``);
-    :func:`pinlib.extras.need` raises it.  As a ``ModuleNotFoundError`` it is still
+    :func:`pinlib.core.extras.need` raises it.  As a ``ModuleNotFoundError`` it is still
     caught by code that expects a failed import.
     """
 

@@ -23,8 +23,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from pinlib import messages as M
-from pinlib.errors import InputError
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
 
 __all__ = [
     "SERIES_NAMES",
@@ -151,7 +151,7 @@ def series(name: str) -> np.ndarray:
 
     Raises
     ------
-    pinlib.errors.InputError
+    pinlib.core.errors.InputError
         For an unknown series name.
 
     Notes
@@ -195,7 +195,7 @@ def values_in_range(name: str, lo: float, hi: float) -> np.ndarray:
 
     Raises
     ------
-    pinlib.errors.InputError
+    pinlib.core.errors.InputError
         For an unknown series, a bound that is not positive and finite, or
         ``lo > hi``.
 
@@ -269,7 +269,7 @@ def above(name: str, x):
 
     Raises
     ------
-    pinlib.errors.InputError
+    pinlib.core.errors.InputError
         For an unknown series or an x that is not positive and finite.
 
     Examples
@@ -300,7 +300,7 @@ def below(name: str, x):
 
     Raises
     ------
-    pinlib.errors.InputError
+    pinlib.core.errors.InputError
         For an unknown series or an x that is not positive and finite.
 
     Examples
@@ -339,7 +339,7 @@ def nearest(name: str, x, *, how: str = "log"):
 
     Raises
     ------
-    pinlib.errors.InputError
+    pinlib.core.errors.InputError
         For an unknown series or ``how``, or an x that is not positive and
         finite.
 

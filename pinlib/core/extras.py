@@ -4,7 +4,7 @@
 charts, or Markdown).  The workbooks and their widgets need the Jupyter stack, the
 ``notebook`` extra: ``pip install 'pinlib[notebook]'``.  A feature that needs an extra
 imports its modules through :func:`need`, so a missing one is a
-:class:`~pinlib.errors.MissingExtraError` naming the extra to install (the command
+:class:`~pinlib.core.errors.MissingExtraError` naming the extra to install (the command
 line prints it and exits 2) rather than a bare ``ModuleNotFoundError``.
 """
 
@@ -14,8 +14,8 @@ import importlib
 import importlib.util
 from types import ModuleType
 
-from pinlib import messages as M
-from pinlib.errors import MissingExtraError
+from pinlib.core import messages as M
+from pinlib.core.errors import MissingExtraError
 
 __all__ = ["EXTRAS", "need", "installed"]
 

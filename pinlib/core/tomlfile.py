@@ -19,8 +19,8 @@ import sys
 import tempfile
 from pathlib import Path
 
-from pinlib import messages as M
-from pinlib.errors import InputError, WriteError
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError, WriteError
 
 if sys.version_info >= (3, 11):
     import tomllib

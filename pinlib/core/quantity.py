@@ -2,7 +2,7 @@
 
 Parsing is strict on purpose.  A value in a part or design file is a string with its
 unit (``"8 pF"``, ``"4.7 kΩ"``, ``"2.2 ns"``); the caller names the unit it expects
-and gets an SI float back, or a :class:`~pinlib.errors.UnitError` that names the
+and gets an SI float back, or a :class:`~pinlib.core.errors.UnitError` that names the
 field, the value and the expected unit.  We parse ourselves rather than hand text to a
 general quantity parser because the general parsers accept too much for a file
 format: ``33R`` as 33 ronna-something, ``4k7`` as 4 with unit ``k7``, ``10 pH`` for a
@@ -29,8 +29,8 @@ from decimal import Decimal
 
 import numpy as np
 
-from pinlib import messages as M
-from pinlib.errors import UnitError
+from pinlib.core import messages as M
+from pinlib.core.errors import UnitError
 
 __all__ = [
     "UNITS",
