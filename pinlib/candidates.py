@@ -30,16 +30,16 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from pinlib.buses import odbatch as ob
-from pinlib.buses import opendrain as od
 from pinlib.compare import can_serve, positions
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.progress import progress_bar
 from pinlib.core.quantity import format_si
-from pinlib.design import Bus, Design, Device
+from pinlib.engines import odbatch as ob
+from pinlib.engines import opendrain as od
 from pinlib.library.schema import CATEGORIES, Part
-from pinlib.result import STATUSES, BusResult, worst
+from pinlib.model.design import Bus, Design, Device
+from pinlib.model.result import STATUSES, BusResult, worst
 
 __all__ = [
     "FORMAT",
@@ -328,7 +328,7 @@ def _failed(part: Part, current: str, method: str, err: PinlibError) -> Candidat
 def _one(design: Design, ref: str, part: Part, places, buses=None):
     """Engine results of the buses in ``buses`` (all places by default) with the part
     in the position."""
-    from pinlib.check import evaluate_bus
+    from pinlib.engines.dispatch import evaluate_bus
 
     swapped = design.with_parts({ref: part.id})
     return [evaluate_bus(swapped.bus(bus.id), swapped) for bus, _ in places

@@ -5,7 +5,7 @@ as SI floats or numpy arrays (s, F, Ω, V).  This module picks a display scale f
 axis (pF, kΩ, ns...) and lays the figures out; it computes no engineering figure.
 
 altair and vl_convert are imported inside the functions that need them, so that
-importing this module (or :mod:`pinlib.check`, :mod:`pinlib.cli`) stays light.
+importing this module (or :mod:`pinlib.engines.dispatch`, :mod:`pinlib.cli`) stays light.
 
 Every chart carries a legend; every axis title names the quantity and its prefixed
 unit, e.g. ``"Bus capacitance Cb (pF)"``, with the values scaled to that unit.

@@ -57,7 +57,7 @@ def main(argv: list[str] | None = None) -> int:
     if not getattr(args, "run", None):
         parser.print_help()
         return 2
-    from pinlib import fitstore
+    from pinlib.engines import fitstore
 
     fitstore.install()  # driver fits kept between runs (PINLIB_CACHE_DIR=off: not)
     try:

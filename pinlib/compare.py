@@ -15,7 +15,7 @@ it must offer every pin function the old part served there, each with a drive th
 position allows.  It is the rule ``pinlib swap`` refuses by and ``pinlib candidates``
 filters by.
 
-Nothing here computes a figure: the engines do (:mod:`pinlib.check`); this module
+Nothing here computes a figure: the engines do (:mod:`pinlib.engines.dispatch`); this module
 compares what they returned.
 """
 
@@ -39,7 +39,7 @@ from pinlib.core.tomlfile import atomic_write
 from pinlib.library.loader import BUILTIN_DIR
 from pinlib.library.schema import Part
 from pinlib.library.values import Sourced
-from pinlib.result import FORMAT as RESULT_FORMAT
+from pinlib.model.result import FORMAT as RESULT_FORMAT
 
 __all__ = [
     "CHANGES_FORMAT",
@@ -93,7 +93,7 @@ def snapshot_path(design_path) -> Path:
     """Where a design's snapshot lives: ``<design>.result.json`` beside it.
 
     ``boards/demo-board.toml`` -> ``boards/demo-board.result.json``.  A
-    :class:`~pinlib.design.Design` may be given instead of its path.
+    :class:`~pinlib.model.design.Design` may be given instead of its path.
     """
     path = getattr(design_path, "path", design_path)
     if path is None:
@@ -275,7 +275,7 @@ def snapshot(design, result) -> dict:
     design : Design
         The design the result was computed from (its parts and library are recorded).
     result : DesignResult or dict
-        The result of :func:`pinlib.check.check_design`, or its JSON form.
+        The result of :func:`pinlib.engines.dispatch.check_design`, or its JSON form.
 
     Returns
     -------
@@ -1066,8 +1066,8 @@ def can_serve(old_part: Part, new_part: Part, device, bus) -> list[str]:
 
 
 def _can_serve_gpio(old_part: Part, new_part: Part, device, bus) -> list[str]:
-    from pinlib.buses.pushpull import gpio_pin
     from pinlib.core.errors import PinlibError
+    from pinlib.engines.pushpull import gpio_pin
 
     reasons = []
     n_lines = len(bus.lines)
@@ -1128,7 +1128,7 @@ def swapped_text(design, swaps: dict[str, str]) -> str:
 
     from pinlib.core.errors import DesignError
     from pinlib.core.tomlfile import tomllib
-    from pinlib.design import design_from_text
+    from pinlib.model.design import design_from_text
 
     fname = str(design.path) if design.path else None
     places = {ref: [] for ref in swaps}

@@ -1,9 +1,9 @@
 """The arrays each chart of a design review draws, computed by the engines themselves.
 
 Engine side of the charts: every function here takes a bus of a loaded design, asks
-the bus's engine for what it worked out (:func:`pinlib.buses.opendrain.collect` for an
-open-drain bus, :func:`pinlib.buses.spi.spi_analysis` or
-:func:`pinlib.buses.pushline.analyse_line` for a push-pull bus) and returns plain SI
+the bus's engine for what it worked out (:func:`pinlib.engines.opendrain.collect` for an
+open-drain bus, :func:`pinlib.engines.spi.spi_analysis` or
+:func:`pinlib.engines.pushline.analyse_line` for a push-pull bus) and returns plain SI
 arrays.  Curves that the engine does not store (a sweep over Cb or over load) come from
 the same physics functions the engine uses, with the same inputs
 (:func:`pinlib.physics.rc.rp_max`, :func:`pinlib.physics.driver.edge_vs_load`), so the
@@ -36,10 +36,10 @@ import numpy as np
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.quantity import format_si
-from pinlib.design import Bus, Design
+from pinlib.model.design import Bus, Design
+from pinlib.model.result import check_min
 from pinlib.physics import driver as drv
 from pinlib.physics import rc
-from pinlib.result import check_min
 
 __all__ = [
     "PullupWindowData",
@@ -262,23 +262,23 @@ def line_analyses(bus: Bus, design: Design, analysis=None) -> dict:
     design : Design
         The loaded design. [1]
     analysis : SpiAnalysis or dict, optional
-        What an earlier call returned (or :func:`pinlib.buses.spi.spi_analysis`), to
+        What an earlier call returned (or :func:`pinlib.engines.spi.spi_analysis`), to
         reuse instead of solving the lines again. [1]
 
     Returns
     -------
     dict of str to LineAnalysis
-        By signal: :class:`pinlib.buses.pushline.LineAnalysis` with the drive cases
+        By signal: :class:`pinlib.engines.pushline.LineAnalysis` with the drive cases
         (waveforms) and the models of every driver.
     """
     _require_protocol(bus, ("spi", "gpio"), "a push-pull line")
     if analysis is not None:
         return dict(getattr(analysis, "lines", analysis))
     if bus.protocol == "spi":
-        from pinlib.buses.spi import spi_analysis
+        from pinlib.engines.spi import spi_analysis
 
         return dict(spi_analysis(bus, design).lines)
-    from pinlib.buses.pushpull import gpio_analyses
+    from pinlib.engines.pushpull import gpio_analyses
 
     return gpio_analyses(bus, design)
 
@@ -328,7 +328,7 @@ def pullup_window_data(bus: Bus, design: Design, segment_id: str | None = None,
 
     Notes
     -----
-    The engine's pass 1 (:func:`pinlib.buses.opendrain.collect`) gives each line's Cb,
+    The engine's pass 1 (:func:`pinlib.engines.opendrain.collect`) gives each line's Cb,
     Rp(min), rise factor and the chosen pull-up; Rp(max) along the sweep is UM10204
     rev. 6 §7.1 eq. 1, ``Rp(max) = tr / (factor · Cb)``
     (:func:`pinlib.physics.rc.rp_max`), with the same tr(max) and factor the engine
@@ -336,7 +336,7 @@ def pullup_window_data(bus: Bus, design: Design, segment_id: str | None = None,
     larger of Cb and the mode's Cb(max) (400 pF where the document gives none), on a
     log scale; the line's own Cb is one of its points.
     """
-    from pinlib.buses.opendrain import SIGNALS, collect
+    from pinlib.engines.opendrain import SIGNALS, collect
 
     _require_protocol(bus, ("i2c", "smbus"), "a pull-up window")
     if signal not in SIGNALS:
@@ -449,7 +449,7 @@ def edge_vs_load_data(bus: Bus, design: Design, signal: str, *, driver: str | No
 def _receiver_levels(la, ref: str) -> tuple[float, float, list[str]]:
     """Lowest VIL and highest VIH of the line's receivers other than the driver; a
     receiver without thresholds switches at half its supply, as in the line engine
-    (:meth:`pinlib.buses.pushline.DriveCase.flight`)."""
+    (:meth:`pinlib.engines.pushline.DriveCase.flight`)."""
     lows, highs, names = [], [], []
     for rx in la.receivers:
         if rx.ref == ref:
@@ -502,9 +502,9 @@ def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None =
     Notes
     -----
     The traces are the line engine's own waveforms (:class:`DriveCase` of
-    :func:`pinlib.buses.pushline.analyse_line`): with ``series_resistor = "auto"`` the
+    :func:`pinlib.engines.pushline.analyse_line`): with ``series_resistor = "auto"`` the
     engine keeps the case without the resistor it chose; with a fixed resistor the
-    case without it is solved here by :func:`pinlib.buses.pushline.drive_case` with
+    case without it is solved here by :func:`pinlib.engines.pushline.drive_case` with
     the same stretches, driver model and loads (push-pull drivers; for an open-drain
     driver it is left out and a note says so).  Each solver record has its own time
     grid; the traces are put on one grid (uniform over the window, plus each trace's
@@ -513,7 +513,7 @@ def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None =
     The window ends 30 % past the moment the slowest trace stays within 2 % of its
     final level.
     """
-    from pinlib.buses import pushline
+    from pinlib.engines import pushline
 
     la = _line(bus, design, signal, analysis)
     ref, case = _case(la, driver)
@@ -560,7 +560,7 @@ def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None =
 
 #: How each SPI requirement's terms stack in the budget bars: ``(key in Term.parts,
 #: sign, component)``.  A term's used time is ``required - b`` (see
-#: :class:`pinlib.buses.spi.Term`): late flights, output delays and the requirement
+#: :class:`pinlib.engines.spi.Term`): late flights, output delays and the requirement
 #: itself add; early flights (of the clock on setup, of the data on hold) are credits.
 BUDGET_COMPONENTS = {
     "copi-setup": (("t_valid_controller", 1.0, "output valid (t_valid)"),
@@ -594,7 +594,7 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
     design : Design
         The loaded design. [1]
     analysis : SpiAnalysis, optional
-        :func:`pinlib.buses.spi.spi_analysis` of the bus, to reuse. [1]
+        :func:`pinlib.engines.spi.spi_analysis` of the bus, to reuse. [1]
 
     Returns
     -------
@@ -604,16 +604,16 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
 
     Notes
     -----
-    Every requirement of :func:`pinlib.buses.spi.budget_terms` is
+    Every requirement of :func:`pinlib.engines.spi.budget_terms` is
     ``a T + b >= required``.  The bar of a path stacks ``required - b`` split into
     its terms (:data:`BUDGET_COMPONENTS`) against the available ``a T`` (half a
     period), or against the controller's stated CS lead for ``cs-setup``; the margin
     is the engine's ``Term.margin(T)``.  The status is the engine's own check
-    (:func:`pinlib.result.check_min` at the design's warning margin).
+    (:func:`pinlib.model.result.check_min` at the design's warning margin).
     """
     _require_protocol(bus, ("spi",), "a timing budget")
     if analysis is None or not hasattr(analysis, "terms"):
-        from pinlib.buses.spi import spi_analysis
+        from pinlib.engines.spi import spi_analysis
 
         analysis = spi_analysis(bus, design)
     clock = float(bus.clock)
@@ -642,7 +642,7 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
                              field=f"{term.id} {term.subject}",
                              value=f"{available - used!r} against {margin!r}",
                              expected="pinlib.plotdata.BUDGET_COMPONENTS to match "
-                                      "pinlib.buses.spi.budget_terms")
+                                      "pinlib.engines.spi.budget_terms")
         avail[path] = available
         margins[path] = margin
         chk = check_min(term.id, float(term.available(period)), term.required, "s",

@@ -9,7 +9,7 @@ import math
 import textwrap
 
 from pinlib.core.quantity import format_si
-from pinlib.result import CAUTION, BusResult, Check, DesignResult, Group
+from pinlib.model.result import CAUTION, BusResult, Check, DesignResult, Group
 
 __all__ = ["format_text", "format_value"]
 
@@ -101,7 +101,7 @@ def format_text(result: DesignResult) -> str:
     Parameters
     ----------
     result : DesignResult
-        What :func:`pinlib.check.check_design` returned.
+        What :func:`pinlib.engines.dispatch.check_design` returned.
 
     Returns
     -------

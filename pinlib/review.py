@@ -1,6 +1,6 @@
 """Design-review reports: one self-contained HTML page, or Markdown with its charts.
 
-A review holds, in this order: the caution (:data:`pinlib.result.CAUTION`); a summary
+A review holds, in this order: the caution (:data:`pinlib.model.result.CAUTION`); a summary
 of every bus; per bus its notes, figures and checks (each check with its status as
 text and colour, its value, limit, margin, message and the source of its limit) and
 its charts; the Monte Carlo histograms when a run is given; every part used with the
@@ -50,8 +50,8 @@ from pinlib import __version__
 from pinlib.core import messages as M
 from pinlib.core.errors import PinlibError
 from pinlib.core.quantity import format_si
+from pinlib.model.result import CAUTION, BusResult, Check, DesignResult, Group
 from pinlib.report import format_value
-from pinlib.result import CAUTION, BusResult, Check, DesignResult, Group
 
 __all__ = [
     "MC_CHARTS",
@@ -283,7 +283,7 @@ def _push_pull_charts(bus, design, result: BusResult, keys, charts):
 
     sa = None
     if bus.protocol == "spi":
-        from pinlib.buses.spi import spi_analysis
+        from pinlib.engines.spi import spi_analysis
 
         sa = spi_analysis(bus, design)
         lines = dict(sa.lines)
@@ -504,9 +504,9 @@ def build_review(design, result: DesignResult, *, changes=None, mc=None) -> Revi
     Parameters
     ----------
     design : Design
-        The loaded design (:func:`pinlib.design.load_design`).
+        The loaded design (:func:`pinlib.model.design.load_design`).
     result : DesignResult
-        Its result (:func:`pinlib.check.check_design`).
+        Its result (:func:`pinlib.engines.dispatch.check_design`).
     changes : ChangeList, optional
         The change list against the saved snapshot
         (:func:`pinlib.compare.compare_with_snapshot`); None: no snapshot.

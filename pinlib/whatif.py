@@ -48,14 +48,14 @@ from statistics import NormalDist
 
 import numpy as np
 
-from pinlib.buses import odbatch as ob
-from pinlib.buses import opendrain as od
-from pinlib.buses import ppbatch as ppb
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.progress import progress_bar
 from pinlib.core.quantity import format_si
-from pinlib.design import Bus, Design, Segment
+from pinlib.engines import odbatch as ob
+from pinlib.engines import opendrain as od
+from pinlib.engines import ppbatch as ppb
+from pinlib.model.design import Bus, Design, Segment
 
 __all__ = [
     "CONFIDENCE",
@@ -202,7 +202,7 @@ def _bus_parameters(bus: Bus, seg_ins, refs_on_buses: dict) -> list[Parameter]:
 
 def _nominal(design: Design) -> dict:
     """The engine's (worst-case) result of each open-drain bus, by id."""
-    from pinlib.check import evaluate_bus
+    from pinlib.engines.dispatch import evaluate_bus
 
     return {b.id: evaluate_bus(b, design) for b in design.buses
             if b.protocol in _OPEN_DRAIN + ppb.PROTOCOLS}

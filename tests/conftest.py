@@ -5,7 +5,7 @@ import pytest
 
 @pytest.fixture(autouse=True)
 def _no_fit_store_between_runs(monkeypatch):
-    # The command line keeps driver fits in a file between runs (pinlib.fitstore); tests
+    # The command line keeps driver fits in a file between runs (pinlib.engines.fitstore); tests
     # run the command in-process many times and must not depend on one another or write
     # into the user's cache: off unless a test turns it on.
     from pinlib.physics import driver

@@ -15,9 +15,9 @@ import pytest
 from pinlib import candidates as cand
 from pinlib.cli import main
 from pinlib.core.errors import DesignError, InputError
-from pinlib.design import load_design
 from pinlib.library.loader import Library, load_library
 from pinlib.library.values import Sourced
+from pinlib.model.design import load_design
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"

@@ -11,7 +11,7 @@ from pathlib import Path
 import pytest
 
 from pinlib.cli import main
-from pinlib.result import CAUTION
+from pinlib.model.result import CAUTION
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"

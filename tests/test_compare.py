@@ -15,7 +15,6 @@ from pathlib import Path
 
 import pytest
 
-from pinlib.check import check_design
 from pinlib.cli import main
 from pinlib.compare import (
     ChangeList,
@@ -32,7 +31,8 @@ from pinlib.compare import (
     value_label,
 )
 from pinlib.core.errors import InputError, UnitError
-from pinlib.design import load_design
+from pinlib.engines.dispatch import check_design
+from pinlib.model.design import load_design
 
 # ---------------------------------------------------------------- invented test data
 

@@ -1,4 +1,4 @@
-"""Tests of design-file loading (pinlib.design): bad designs give errors that name the
+"""Tests of design-file loading (pinlib.model.design): bad designs give errors that name the
 file, line and field, and ``pinlib check`` turns them into exit 2 with that message."""
 
 from __future__ import annotations
@@ -9,7 +9,7 @@ import pytest
 
 from pinlib.cli import main
 from pinlib.core.errors import DesignError
-from pinlib.design import load_design
+from pinlib.model.design import load_design
 
 PARTS = Path(__file__).parent / "data" / "parts"
 

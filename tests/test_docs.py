@@ -62,7 +62,7 @@ def test_part_page_names_every_field():
 
 
 def test_design_page_names_every_field():
-    from pinlib import design
+    from pinlib.model import design
 
     text = _text("formats/design.md")
     models = (design.RawDesign, design.RawBus, design.RawSegment, design.RawTrace,

@@ -1,4 +1,4 @@
-"""Driver fits kept between runs of the command (pinlib.fitstore)."""
+"""Driver fits kept between runs of the command (pinlib.engines.fitstore)."""
 
 from __future__ import annotations
 
@@ -11,7 +11,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from pinlib import fitstore
+from pinlib.engines import fitstore
 from pinlib.physics import driver
 
 DEMO = Path(__file__).resolve().parents[1] / "workbooks" / "designs" / "demo-board.toml"

@@ -36,14 +36,14 @@ import tomlkit
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
-from pinlib.check import check_design
 from pinlib.cli import main
 from pinlib.core.errors import FitWarning, PinlibError, ValidityWarning, WriteError
 from pinlib.core.tomlfile import atomic_write, tomllib
-from pinlib.design import load_design
+from pinlib.engines.dispatch import check_design
 from pinlib.library import loader
 from pinlib.library.loader import load_library
 from pinlib.library.record import new_part, record_value
+from pinlib.model.design import load_design
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"

@@ -12,7 +12,7 @@ from pathlib import Path
 
 import pytest
 
-from pinlib.check import check_file
+from pinlib.engines.dispatch import check_file
 from pinlib.labels import FIGURES, check_label, figure_label, humanize, short_label, shown_figures
 
 ROOT = Path(__file__).resolve().parents[1]

@@ -23,11 +23,11 @@ from pinlib.core.errors import PinlibError
 from pinlib.core.quantity import parse, parse_threshold
 from pinlib.core.tomlfile import atomic_write, file_lock, tomllib
 from pinlib.core.tomlfile import load as load_toml
-from pinlib.design import load_design
 from pinlib.library import loader
 from pinlib.library import record as rec
 from pinlib.library.fields import resolve_path
 from pinlib.library.loader import load_library
+from pinlib.model.design import load_design
 
 HEAD = """\
 format = "pinlib.design/1"
@@ -822,16 +822,16 @@ def _(env):
 
 @case("DESIGN_CHANGED_DURING_SWAP")
 def _(env):
-    import pinlib.check
+    import pinlib.engines.dispatch
 
     path = env.write("design.toml", HEAD + I2C_BUS)
-    real = pinlib.check.check_design
+    real = pinlib.engines.dispatch.check_design
 
     def meddle(design):
         path.write_text(HEAD + I2C_BUS + "\n# edited meanwhile\n", encoding="utf-8")
         return real(design)
 
-    env.monkeypatch.setattr(pinlib.check, "check_design", meddle)
+    env.monkeypatch.setattr(pinlib.engines.dispatch, "check_design", meddle)
     return env.cli("swap", str(path), "U2=rtc-i2c", "--write")
 
 
@@ -1238,7 +1238,7 @@ def _(env):
 
 # ---------------------------------------------------------------- bus engines
 def _check(design):
-    from pinlib.check import check_design
+    from pinlib.engines.dispatch import check_design
     return check_design(design)
 
 
@@ -1249,13 +1249,13 @@ def _bus(env, body=SPI_BUS, bus="s"):
 
 @case("NOT_OPEN_DRAIN_BUS")
 def _(env):
-    from pinlib.buses.limits import limits_for
+    from pinlib.engines.limits import limits_for
     return _fails(lambda e: limits_for("spi", None), env)
 
 
 @case("NOT_PUSH_PULL_BUS")
 def _(env):
-    from pinlib.buses.pushpull import evaluate_bus
+    from pinlib.engines.pushpull import evaluate_bus
     return _fails(lambda e: evaluate_bus(*_bus(e, I2C_BUS, "b")), env)
 
 
@@ -1296,34 +1296,34 @@ def _(env):
 # ---------------------------------------------------------------- bus engines: spi
 @case("UNKNOWN_SPI_MODE")
 def _(env):
-    from pinlib.buses.spi import spi_mode
+    from pinlib.engines.spi import spi_mode
     return _fails(lambda e: spi_mode(4), env)
 
 
 @case("NEGATIVE_PERIOD_COEFFICIENT")
 def _(env):
-    from pinlib.buses.spi import max_clock
+    from pinlib.engines.spi import max_clock
     return _fails(lambda e: max_clock([-0.5], [10e-9]), env)
 
 
 @case("CONTROLLER_LACKS_PUSH_PULL_PIN",
       M.CONTROLLER_LACKS_PUSH_PULL_PIN.format(function="spi-sclk"))
 def _(env):
-    from pinlib.buses import spi
+    from pinlib.engines import spi
     env.monkeypatch.setattr(spi, "endpoint", lambda *a: None)  # no SCLK pin found
     return _fails(lambda e: _check(e.design(SPI_BUS)), env)
 
 
 @case("ZERO_LENGTH_NOT_SCALED")
 def _(env):
-    from pinlib.buses.spi import max_clock_vs_length
+    from pinlib.engines.spi import max_clock_vs_length
     body = SPI_BUS.replace('length = "3 cm"', 'length = "0 cm"')
     return _fails(lambda e: max_clock_vs_length(*_bus(e, body), [0.05]), env)
 
 
 @case("NO_SUCH_PERIPHERAL")
 def _(env):
-    from pinlib.buses.spi import max_clock_vs_t_valid
+    from pinlib.engines.spi import max_clock_vs_t_valid
     return _fails(lambda e: max_clock_vs_t_valid(*_bus(e), [5e-9], peripheral="U9"), env)
 
 
@@ -1331,7 +1331,7 @@ def _(env):
 def _(env):
     import dataclasses
 
-    from pinlib.buses import spi
+    from pinlib.engines import spi
     real = spi.spi_analysis
 
     def without_t_valid(bus, design):
@@ -1386,7 +1386,7 @@ def _(env):
 
 @case("EDIT_LOST_PART")
 def _(env):
-    import pinlib.design as design_module
+    import pinlib.model.design as design_module
     compare = _compare()
     design = env.design(I2C_BUS)
     # the edited text read back as the old design: the new part is not in it

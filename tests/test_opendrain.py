@@ -1,4 +1,4 @@
-"""Tests of the open-drain engine (pinlib.buses.opendrain) against UM10204, SMBus 3.1,
+"""Tests of the open-drain engine (pinlib.engines.opendrain) against UM10204, SMBus 3.1,
 a published application-note example, ngspice and the eseries package."""
 
 from __future__ import annotations
@@ -10,9 +10,9 @@ import eseries
 import pytest
 from spice import have_ngspice, run_deck
 
-from pinlib.buses import opendrain
-from pinlib.check import check_design
-from pinlib.design import load_design
+from pinlib.engines import opendrain
+from pinlib.engines.dispatch import check_design
+from pinlib.model.design import load_design
 from pinlib.physics.rc import RISE_10_90, RISE_30_70
 
 PARTS = Path(__file__).parent / "data" / "parts"

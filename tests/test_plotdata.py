@@ -13,7 +13,7 @@ import numpy as np
 import pytest
 
 from pinlib import charts, plotdata
-from pinlib.design import load_design
+from pinlib.model.design import load_design
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"

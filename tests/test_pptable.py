@@ -1,4 +1,4 @@
-"""Tables of the push-pull engine over a tolerance box (pinlib.buses.pptable).
+"""Tables of the push-pull engine over a tolerance box (pinlib.engines.pptable).
 
 The reference here is the push-pull engine itself: a table only stands in for it, so
 every board the table evaluates is compared with the engine's own evaluation of the
@@ -18,11 +18,11 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from pinlib.buses import ppbatch as ppb
-from pinlib.buses import pptable
-from pinlib.buses.pushpull import evaluate_bus
-from pinlib.design import load_design
-from pinlib.result import (
+from pinlib.engines import ppbatch as ppb
+from pinlib.engines import pptable
+from pinlib.engines.pushpull import evaluate_bus
+from pinlib.model.design import load_design
+from pinlib.model.result import (
     STATUS_CODES,
     _status,
     check_max,
@@ -191,8 +191,8 @@ def test_array_margins_and_statuses_follow_the_scalar_rules(value, limit, warn):
 
 def test_replace_keeps_frozen_timing_records_usable_with_arrays(link):
     # budget_terms takes flights as arrays: one term per peripheral, arrays of margins
-    from pinlib.buses.pushline import Flight
-    from pinlib.buses.spi import budget_terms, spi_analysis
+    from pinlib.engines.pushline import Flight
+    from pinlib.engines.spi import budget_terms, spi_analysis
 
     design, bus = link
     sa = spi_analysis(bus, design)
@@ -216,7 +216,7 @@ def test_device_pin_capacitance_is_drawn_on_push_pull_buses(link):
     assert varied.devices[1].capacitance_factor == 1.2
     assert varied.devices[0].capacitance_factor == 1.0
     # a pin's capacitance on the line is the stored value times the drawn factor
-    from pinlib.buses.pushline import Endpoint
+    from pinlib.engines.pushline import Endpoint
     pin = dev.part.pins["cipo"] if "cipo" in dev.part.pins else next(iter(dev.part.pins.values()))
     stored = Endpoint(dev, "x", pin, 3.3).c_in
     assert Endpoint(varied.devices[1], "x", pin, 3.3).c_in == pytest.approx(1.2 * stored)

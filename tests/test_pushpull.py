@@ -1,4 +1,4 @@
-"""Tests of the push-pull line engine (pinlib.buses.pushline) and the GPIO bus engine.
+"""Tests of the push-pull line engine (pinlib.engines.pushline) and the GPIO bus engine.
 
 Whole lines built by the engine from test parts are checked against ngspice (lossless
 ``T`` elements, a PWL ramp behind a resistor, the pins as one capacitor at the far end):
@@ -21,8 +21,9 @@ import numpy as np
 import pytest
 from spice import have_ngspice, run_deck
 
-from pinlib.buses import pushline, pushpull
-from pinlib.buses.pushline import (
+from pinlib.core.errors import DesignError, InputError
+from pinlib.engines import pushline, pushpull
+from pinlib.engines.pushline import (
     EDGE_FRACTION,
     LONG_LINE_FRACTION,
     Endpoint,
@@ -32,10 +33,9 @@ from pinlib.buses.pushline import (
     needs_distributed,
     stretches_of,
 )
-from pinlib.buses.pushpull import evaluate_bus
-from pinlib.core.errors import DesignError, InputError
-from pinlib.design import Device, Line, Section, load_design
+from pinlib.engines.pushpull import evaluate_bus
 from pinlib.library import load_library
+from pinlib.model.design import Device, Line, Section, load_design
 from pinlib.physics import rc
 from pinlib.physics.driver import driver_from_pin
 

@@ -39,12 +39,12 @@ import pytest
 from pngcheck import png_pixels
 
 from pinlib import plotdata, review
-from pinlib.check import check_design
 from pinlib.cli import main
 from pinlib.compare import compare_with_snapshot, save_snapshot, snapshot, value_label
-from pinlib.design import load_design
+from pinlib.engines.dispatch import check_design
+from pinlib.model.design import load_design
+from pinlib.model.result import CAUTION
 from pinlib.physics import pullup as pu
-from pinlib.result import CAUTION
 
 pytest.importorskip("altair")
 pytest.importorskip("vl_convert")

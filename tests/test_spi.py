@@ -1,4 +1,4 @@
-"""Tests of the SPI timing budget (pinlib.buses.spi): modes, margins, max_clock.
+"""Tests of the SPI timing budget (pinlib.engines.spi): modes, margins, max_clock.
 
 Published and derived check values are marked where they are used; the buses are
 built from the invented test parts in tests/data/pushpull.
@@ -15,11 +15,11 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from pinlib.buses import spi
-from pinlib.buses.pushline import EDGE_FRACTION, endpoint
-from pinlib.buses.pushpull import evaluate_bus
 from pinlib.core.errors import InputError
-from pinlib.design import load_design
+from pinlib.engines import spi
+from pinlib.engines.pushline import EDGE_FRACTION, endpoint
+from pinlib.engines.pushpull import evaluate_bus
+from pinlib.model.design import load_design
 
 DATA = Path(__file__).parent / "data" / "pushpull"
 

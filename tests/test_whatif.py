@@ -14,10 +14,10 @@ import numpy as np
 import pytest
 
 from pinlib import whatif
-from pinlib.check import check_design
 from pinlib.cli import main
 from pinlib.core.errors import InputError
-from pinlib.design import load_design
+from pinlib.engines.dispatch import check_design
+from pinlib.model.design import load_design
 from pinlib.physics.rc import RISE_30_70
 
 ROOT = Path(__file__).resolve().parents[1]

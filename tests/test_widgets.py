@@ -3,7 +3,7 @@
 The widget classes are driven from Python the way a user turns their knobs (``set``
 and the named methods).  What each test holds them to:
 
-* the figures a widget shows are what :func:`pinlib.check.check_design` returns for the
+* the figures a widget shows are what :func:`pinlib.engines.dispatch.check_design` returns for the
   design text the widget wrote, and the same as for an equivalent design file written
   by hand here;
 * a few figures against published relations (the I2C rise time, the probe's share of a
@@ -35,11 +35,11 @@ pytest.importorskip("altair")
 pytest.importorskip("vl_convert")
 
 from pinlib import charts  # noqa: E402
-from pinlib.check import check_design, check_file  # noqa: E402
 from pinlib.core.errors import DesignError, InputError  # noqa: E402
 from pinlib.core.tomlfile import tomllib  # noqa: E402
-from pinlib.design import design_from_text, load_design  # noqa: E402
+from pinlib.engines.dispatch import check_design, check_file  # noqa: E402
 from pinlib.library import load_library  # noqa: E402
+from pinlib.model.design import design_from_text, load_design  # noqa: E402
 from pinlib.widgets import (  # noqa: E402
     BusBuilder,
     LineExplorer,
@@ -558,7 +558,7 @@ def test_find_file_from_a_subfolder(monkeypatch):
 
 
 def test_widgets_stay_out_of_the_command_line_import_path():
-    code = ("import sys, pinlib.cli, pinlib.check; "
+    code = ("import sys, pinlib.cli, pinlib.engines.dispatch; "
             "bad = [m for m in ('ipywidgets', 'pinlib.widgets', 'altair') if m in sys.modules]; "
             "print(bad); sys.exit(1 if bad else 0)")
     run = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,

@@ -92,9 +92,9 @@ def seed_type(text):
 
 
 def run(args) -> int:
-    from pinlib.check import check_design
     from pinlib.compare import DEFAULT_THRESHOLD, compare_with_snapshot, save_snapshot
-    from pinlib.design import load_design
+    from pinlib.engines.dispatch import check_design
+    from pinlib.model.design import load_design
 
     design = load_design(args.design, library_folders=args.library)
     if getattr(args, "seed", None) is not None and getattr(args, "monte_carlo", None) is None:

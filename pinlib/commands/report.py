@@ -117,11 +117,11 @@ def _monte_carlo(design, n: int, seed: int | None):
 
 
 def run(args) -> int:
-    from pinlib.check import check_design
     from pinlib.compare import DEFAULT_THRESHOLD, compare_with_snapshot
     from pinlib.core.errors import InputError
     from pinlib.core.tomlfile import atomic_write
-    from pinlib.design import load_design
+    from pinlib.engines.dispatch import check_design
+    from pinlib.model.design import load_design
     from pinlib.review import build_review
 
     if args.seed is not None and args.monte_carlo is None:

@@ -131,7 +131,6 @@ def _table(rows) -> list[str]:
 
 
 def run(args) -> int:
-    from pinlib.check import check_design
     from pinlib.compare import (
         DEFAULT_THRESHOLD,
         compare,
@@ -141,8 +140,9 @@ def run(args) -> int:
     )
     from pinlib.core.errors import WriteError
     from pinlib.core.tomlfile import atomic_write, file_lock
-    from pinlib.design import load_design
-    from pinlib.result import CAUTION
+    from pinlib.engines.dispatch import check_design
+    from pinlib.model.design import load_design
+    from pinlib.model.result import CAUTION
 
     threshold = DEFAULT_THRESHOLD if args.threshold is None else args.threshold
     swaps = parse_assignments(args.swaps)

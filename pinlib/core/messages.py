@@ -103,7 +103,7 @@ FILE_NO_LONGER_HOLDS_PART = "the file no longer holds this part"
 CANNOT_KEEP_LAYOUT = "cannot set this value while keeping the file's layout"
 NO_SUCH_PIN = "the part has no such pin"
 
-# ---------------------------------------------------------------- pinlib/design.py
+# ---------------------------------------------------------------- pinlib/model/design.py
 NOT_A_DESIGN = "not a design file"
 DESIGN_LIBRARY_MISSING = "a library folder named by the design does not exist"
 MICROSTRIP_NEEDS_HEIGHT = "a microstrip needs its height above the plane"
@@ -238,12 +238,12 @@ FIT_TWO_DRIVERS = ("the points fit two drivers within {tolerance}: r_out {r_out}
                    "used")
 
 # ---------------------------------------------------------------- bus engines
-# pinlib/buses/limits.py, opendrain.py, pushpull.py, pushline.py
+# pinlib/engines/limits.py, opendrain.py, pushpull.py, pushline.py
 NOT_OPEN_DRAIN_BUS = "not an open-drain bus"
 NOT_PUSH_PULL_BUS = "the push-pull engine evaluates spi and gpio buses"
 NO_DRIVER_ON_LINE = "no device drives this line"
 TOO_MANY_TIME_STEPS = "the line's waveform would need {steps} time steps (at most {limit})"
-# pinlib/buses/spi.py
+# pinlib/engines/spi.py
 UNKNOWN_SPI_MODE = "unknown SPI mode"
 NEGATIVE_PERIOD_COEFFICIENT = "a margin's period coefficient must not be negative"
 CONTROLLER_LACKS_PUSH_PULL_PIN = "the controller has no push-pull {function} pin"
@@ -356,7 +356,7 @@ MODULES = (
     "pinlib.library.values",
     "pinlib.library.fields",
     "pinlib.library.record",
-    "pinlib.design",
+    "pinlib.model.design",
     "pinlib.commands.parts",
     "pinlib.commands.swap",
     "pinlib.standards.i2c",
@@ -368,11 +368,11 @@ MODULES = (
     "pinlib.physics.waveform",
     "pinlib.physics.lines",
     "pinlib.physics.driver",
-    "pinlib.buses.limits",
-    "pinlib.buses.opendrain",
-    "pinlib.buses.pushline",
-    "pinlib.buses.pushpull",
-    "pinlib.buses.spi",
+    "pinlib.engines.limits",
+    "pinlib.engines.opendrain",
+    "pinlib.engines.pushline",
+    "pinlib.engines.pushpull",
+    "pinlib.engines.spi",
     "pinlib.compare",
     "pinlib.candidates",
     "pinlib.whatif",

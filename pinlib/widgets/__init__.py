@@ -8,9 +8,9 @@ tests drive, without a browser.
 
 Every figure comes from the engines.  A widget writes the design its controls describe
 (``pinlib.design/1`` text, built with tomlkit), loads it with
-:func:`pinlib.design.design_from_text` and evaluates it with :mod:`pinlib.check`; the
-arrays each chart draws come from :mod:`pinlib.plotdata` and the chart specifications
-from :mod:`pinlib.charts`.  Nothing here computes an engineering figure; it formats.
+:func:`pinlib.model.design.design_from_text` and evaluates it with
+:mod:`pinlib.engines.dispatch`; the arrays each chart draws come from
+:mod:`pinlib.plotdata` and the chart specifications from :mod:`pinlib.charts`.  Nothing here computes an engineering figure; it formats.
 
 Charts
 ------
@@ -39,7 +39,7 @@ trace controls), and one module per workbench: ``busbuilder`` (01), ``lineexplor
 from :mod:`pinlib.labels`.
 
 This package imports ipywidgets, and altair through :mod:`pinlib.charts`; the command line
-and :mod:`pinlib.check` never import it.
+and :mod:`pinlib.engines.dispatch` never import it.
 """
 
 from pinlib.core.extras import need

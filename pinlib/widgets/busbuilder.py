@@ -11,14 +11,14 @@ import ipywidgets as W
 import tomlkit
 
 from pinlib import charts, plotdata
-from pinlib.check import check_design
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import atomic_write, tomllib
-from pinlib.design import MODES, design_from_text
+from pinlib.engines.dispatch import check_design
 from pinlib.library import load_library
 from pinlib.library.loader import Library
+from pinlib.model.design import MODES, design_from_text
 from pinlib.widgets.common import (
     ChartView,
     QuantityField,
@@ -455,7 +455,7 @@ class BusBuilder(_Panel):
         self._bench()
 
     def _bench(self) -> None:
-        from pinlib.buses.opendrain import capacitance_from_rise
+        from pinlib.engines.opendrain import capacitance_from_rise
 
         if self.rise_measured.error or self.c_probe.error:
             return  # the reading shown stays that of the last valid inputs
@@ -488,7 +488,7 @@ class BusBuilder(_Panel):
     def save(self, path: str | os.PathLike) -> Path:
         """Write the design file atomically, after loading it back as a check.
 
-        The text is loaded with :func:`pinlib.design.design_from_text` from where it will
+        The text is loaded with :func:`pinlib.model.design.design_from_text` from where it will
         be (its ``library`` folders resolved beside it) before anything is written; an
         invalid design raises and leaves any existing file as it was.
         """

@@ -9,9 +9,9 @@ import ipywidgets as W
 import tomlkit
 
 from pinlib.core.tomlfile import tomllib
-from pinlib.design import FORMAT as DESIGN_FORMAT
-from pinlib.design import Design, design_from_text
 from pinlib.library.loader import BUILTIN_DIR, Library
+from pinlib.model.design import FORMAT as DESIGN_FORMAT
+from pinlib.model.design import Design, design_from_text
 from pinlib.widgets.common import (
     QuantityField,
     _num,

@@ -10,10 +10,10 @@ import numpy as np
 import tomlkit
 
 from pinlib import charts, plotdata
-from pinlib.buses.pushpull import evaluate_gpio, gpio_analyses
-from pinlib.check import design_result
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
+from pinlib.engines.dispatch import design_result
+from pinlib.engines.pushpull import evaluate_gpio, gpio_analyses
 from pinlib.library import load_library
 from pinlib.library.loader import Library
 from pinlib.widgets.common import (

@@ -15,8 +15,8 @@ import re
 
 from pinlib import charts, labels
 from pinlib.core.errors import PinlibError
+from pinlib.model.result import CAUTION, BusResult, Group
 from pinlib.report import format_value
-from pinlib.result import CAUTION, BusResult, Group
 
 STATUS_TEXT = {"pass": "PASS", "warn": "WARN", "fail": "FAIL"}
 _BORDER = "border:1px solid #c8c8c8;padding:1px 6px;vertical-align:top"

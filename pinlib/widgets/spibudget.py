@@ -13,10 +13,10 @@ from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import tomllib
-from pinlib.design import Design, design_from_text, load_design
 from pinlib.labels import check_label
+from pinlib.model.design import Design, design_from_text, load_design
+from pinlib.model.result import BusResult
 from pinlib.report import format_value
-from pinlib.result import BusResult
 from pinlib.widgets.common import (
     ChartView,
     QuantityField,
@@ -56,7 +56,7 @@ class ClockLimit:
     what : str
         The requirement: ``"copi-setup U7"``, ``"edge-time sclk"``, ``"f_max U1"``. [1]
     clock : float
-        The highest clock it allows alone (:func:`pinlib.buses.spi.max_clock` of its
+        The highest clock it allows alone (:func:`pinlib.engines.spi.max_clock` of its
         term). [Hz]
     source : str
         Where its limit comes from. [1]
@@ -177,7 +177,7 @@ class SpiBudget(_Panel):
 
     def update(self) -> None:
         """Evaluate the bus at the chosen clock and mode; redraw the budget."""
-        from pinlib.buses.spi import evaluate_spi, spi_analysis
+        from pinlib.engines.spi import evaluate_spi, spi_analysis
 
         if self._quiet:
             return
@@ -217,8 +217,8 @@ class SpiBudget(_Panel):
     @staticmethod
     def _limits(sa, br: BusResult) -> list[ClockLimit]:
         """Each requirement's own highest clock, by the engine's own closed form."""
-        from pinlib.buses.pushline import EDGE_FRACTION
-        from pinlib.buses.spi import max_clock
+        from pinlib.engines.pushline import EDGE_FRACTION
+        from pinlib.engines.spi import max_clock
 
         out = []
         for t in sa.terms:

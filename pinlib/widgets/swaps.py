@@ -17,13 +17,13 @@ import ipywidgets as W
 import numpy as np
 
 from pinlib import charts, plotdata
-from pinlib.check import check_design
 from pinlib.compare import format_change, format_figure
 from pinlib.core import messages as M
 from pinlib.core.errors import PinlibError
 from pinlib.core.quantity import format_si
-from pinlib.design import load_design
+from pinlib.engines.dispatch import check_design
 from pinlib.labels import check_label, figure_label, short_label, shown_figures
+from pinlib.model.design import load_design
 from pinlib.report import format_value
 from pinlib.widgets.common import (
     ChartView,

@@ -17,9 +17,9 @@ import time
 from pathlib import Path
 
 from pinlib import candidates as cand
-from pinlib.design import load_design
 from pinlib.library.loader import load_library
 from pinlib.library.schema import Part
+from pinlib.model.design import load_design
 from tests.bench.common import Result, median_time
 
 __all__ = ["run", "DESIGN"]

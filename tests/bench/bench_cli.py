@@ -3,7 +3,7 @@
 This is what a user waits for at the prompt: interpreter start, imports (pandas,
 altair and the widgets must stay out of this path), library load, every engine and the
 text report.  The baseline is the bare interpreter start in the same run.  The command
-keeps its driver fits between runs (:mod:`pinlib.fitstore`): the timed runs are the
+keeps its driver fits between runs (:mod:`pinlib.engines.fitstore`): the timed runs are the
 repeat runs a user makes (the store warm, in a temporary folder); the first run, with
 an empty store, is reported beside them.
 """

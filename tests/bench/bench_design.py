@@ -1,7 +1,7 @@
 """A large generated design checked: 100 buses of 20 devices each.
 
-:func:`pinlib.design.load_design` (with the library load) and
-:func:`pinlib.check.check_design` in this process.  The baseline is one bus of the
+:func:`pinlib.model.design.load_design` (with the library load) and
+:func:`pinlib.engines.dispatch.check_design` in this process.  The baseline is one bus of the
 same kind with 10 buses, loaded and checked the same way: the ratio shows whether the
 cost grows linearly with the buses (10 for ten times the buses; less when the fixed
 part, the library load, still counts).
@@ -12,8 +12,8 @@ from __future__ import annotations
 import tempfile
 from pathlib import Path
 
-from pinlib.check import check_design
-from pinlib.design import load_design
+from pinlib.engines.dispatch import check_design
+from pinlib.model.design import load_design
 from tests.bench.common import Result, median_time
 from tests.bench.generate import large_design
 

@@ -2,10 +2,10 @@
 
 An I2C bus (a small design with every tolerance set) and the demo design's open-drain
 buses (a bridged I2C bus of two segments and an SMBus link).  The baseline is one
-board checked by the engine (:func:`pinlib.check.evaluate_bus` on each sampled bus):
+board checked by the engine (:func:`pinlib.engines.dispatch.evaluate_bus` on each sampled bus):
 the ratio says how many boards the vectorized draw checks in the time the engine
 checks one.  The demo's SPI flash bus (with its supply and length tolerances) is sampled
-through the tables of :mod:`pinlib.buses.pptable` (engine evaluations over the tolerance
+through the tables of :mod:`pinlib.engines.pptable` (engine evaluations over the tolerance
 box, verified against the engine); the time includes building them.
 """
 
@@ -15,8 +15,8 @@ import tempfile
 from dataclasses import replace
 from pathlib import Path
 
-from pinlib.check import evaluate_bus
-from pinlib.design import load_design
+from pinlib.engines.dispatch import evaluate_bus
+from pinlib.model.design import load_design
 from pinlib.whatif import monte_carlo
 from tests.bench.common import Result, median_time
 
@@ -112,5 +112,5 @@ def run(repeats: int = 3, quick: bool = False) -> list[Result]:
                       rate * t_one, "boards per engine check", unit="boards/s",
                       target=f"> {TARGET:,}/s", passed=rate > TARGET,
                       extra=[f"{n_spi:,} boards; {table or 'no table: every board by the engine'}"
-                             " (pinlib.buses.pptable), the table's cost included"]))
+                             " (pinlib.engines.pptable), the table's cost included"]))
     return out

@@ -3,7 +3,7 @@
 Each widget is driven through ``set()`` between two values of one control, so every
 run rebuilds the design, evaluates it, rebuilds the chart and renders its SVG (an
 unchanged chart would not be rendered again).  The baseline is
-:func:`pinlib.check.check_design` of the design the widget has just built, in the same
+:func:`pinlib.engines.dispatch.check_design` of the design the widget has just built, in the same
 process: what the widget adds on top of the engine is charts, tables and HTML.
 """
 
@@ -38,7 +38,7 @@ def _cases():
 
 
 def run(repeats: int = 7, quick: bool = False) -> list[Result]:
-    from pinlib.check import check_design
+    from pinlib.engines.dispatch import check_design
 
     out = []
     with warnings.catch_warnings():

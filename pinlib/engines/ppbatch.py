@@ -9,11 +9,11 @@ line's series resistor no tolerance, so it stays nominal; a line whose resistor 
 the resistor the design chose, whatever its own trace turned out to be).
 
 A small batch (corners, a short Monte Carlo run) is evaluated by the engine itself,
-variant by variant (:func:`pinlib.buses.pushpull.evaluate_bus` on the varied bus;
+variant by variant (:func:`pinlib.engines.pushpull.evaluate_bus` on the varied bus;
 identical variants once), so that every margin is the engine's.  The line engine picks
 its time grid from each variant's own time constants and delays, so the waveform
 solvers cannot share one batched solve across variants.  A large batch is evaluated
-from tables of the engine over the tolerance box (:mod:`pinlib.buses.pptable`), built
+from tables of the engine over the tolerance box (:mod:`pinlib.engines.pptable`), built
 once per run, verified against the engine, with the engine taking every board outside
 the box or close to failing.
 
@@ -29,10 +29,10 @@ from typing import Any
 
 import numpy as np
 
-from pinlib.buses import pushpull as pp
-from pinlib.buses.odbatch import BatchCheck
-from pinlib.design import Bus, Design
-from pinlib.result import STATUS_CODES
+from pinlib.engines import pushpull as pp
+from pinlib.engines.odbatch import BatchCheck
+from pinlib.model.design import Bus, Design
+from pinlib.model.result import STATUS_CODES
 
 __all__ = [
     "PROTOCOLS",
@@ -267,7 +267,7 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
     nominal : BusResult, optional
         The engine's result of the bus as designed (names the checks). [1]
     tables : dict, optional
-        Where the tables of :mod:`pinlib.buses.pptable` are kept between calls, by bus
+        Where the tables of :mod:`pinlib.engines.pptable` are kept between calls, by bus
         id (a Monte Carlo run passes one dict for all its chunks).  Without it, or when
         a table would cost more engine evaluations than there are distinct variants,
         every variant is evaluated by the engine. [1]
@@ -358,7 +358,7 @@ def _table(bus, design, chosen, tables, span, floor, distinct, progress):
     if bus.id in tables:
         got = tables[bus.id]
         return None if isinstance(got, str) else got
-    from pinlib.buses import pptable
+    from pinlib.engines import pptable
 
     axes = pptable.axes_of(parameter_specs(bus), span, floor)
     cost = math.prod(pptable.NODES[ax.kind] for ax in axes) + pptable.VERIFY
@@ -369,7 +369,7 @@ def _table(bus, design, chosen, tables, span, floor, distinct, progress):
 
 
 def _table_note(bus: Bus, grid) -> str:
-    from pinlib.buses import pptable
+    from pinlib.engines import pptable
 
     axes = ", ".join(f"{ax.kind} factor {ax.lo:.3g}–{ax.hi:.3g}" for ax in grid.axes)
     return (f"bus {bus.id}: line results interpolated from {grid.evaluations} engine "

@@ -1,11 +1,11 @@
 """Tables of the push-pull engine over a bus's tolerance box, for large batches of boards.
 
 A drawn board of an SPI or GPIO bus differs from the design in its rails, its line
-lengths and its extra line capacitance (:mod:`pinlib.buses.ppbatch`).  Each line's
+lengths and its extra line capacitance (:mod:`pinlib.engines.ppbatch`).  Each line's
 results (its checks, and the flights it gives the timing budget) depend only on that
 line's own length and capacitance factors, on the rails and on the pins' capacitance; the
 bus's timing checks are sums of flights from several lines
-(:func:`pinlib.buses.spi.budget_terms`).  So:
+(:func:`pinlib.engines.spi.budget_terms`).  So:
 
 1. **Nodes.**  The engine evaluates the bus at every node of a grid over the box: one
    axis for the length factor (every line at the same factor), one for the extra
@@ -18,8 +18,8 @@ bus's timing checks are sums of flights from several lines
    taken as it is.
 3. **Bus.**  The timing checks are computed from the interpolated flights by the
    engine's own budget (``budget_terms``, which takes arrays) and the margin rule of
-   :func:`pinlib.result.check_min`; statuses come from the margins by the engine's
-   rule (:func:`pinlib.result.status_codes`).
+   :func:`pinlib.model.result.check_min`; statuses come from the margins by the engine's
+   rule (:func:`pinlib.model.result.status_codes`).
 4. **Verification.**  The table is refused (the caller then runs the engine on every
    board) when the nodes do not all give the same checks, when a check's status does
    not follow from its margin, or when, at :data:`VERIFY` boards drawn inside the box,
@@ -41,12 +41,12 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from pinlib.buses import ppbatch as ppb
-from pinlib.buses import pushpull as pp
-from pinlib.buses.ppbatch import number_or_nan as _num
-from pinlib.buses.pushline import Flight
-from pinlib.design import Bus, Design
-from pinlib.result import STATUS_CODES, min_margin, status_codes
+from pinlib.engines import ppbatch as ppb
+from pinlib.engines import pushpull as pp
+from pinlib.engines.ppbatch import number_or_nan as _num
+from pinlib.engines.pushline import Flight
+from pinlib.model.design import Bus, Design
+from pinlib.model.result import STATUS_CODES, min_margin, status_codes
 
 __all__ = ["MARGIN_TOL", "VERIFY", "Axis", "LineTable", "axes_of", "tabulate"]
 
@@ -80,7 +80,7 @@ class Axis:
 
 
 def axes_of(specs: list[tuple], span: float, floor: float) -> list[Axis]:
-    """The axes of a bus's table from :func:`pinlib.buses.ppbatch.parameter_specs`.
+    """The axes of a bus's table from :func:`pinlib.engines.ppbatch.parameter_specs`.
 
     Parameters
     ----------
@@ -117,7 +117,7 @@ class LineTable:
     axes : list of Axis
         The grid's axes. [1]
     names : list of dict
-        The checks of a varied board, as :func:`pinlib.buses.ppbatch.check_names`. [1]
+        The checks of a varied board, as :func:`pinlib.engines.ppbatch.check_names`. [1]
     evaluations : int
         Engine evaluations made (nodes and verification boards). [1]
     max_error : float
@@ -163,7 +163,7 @@ class LineTable:
         -------
         dict
             ``margin``, ``value``, ``limit`` (float, shape ``(n, checks)``) and
-            ``status`` (int codes of :data:`pinlib.result.STATUS_CODES`).
+            ``status`` (int codes of :data:`pinlib.model.result.STATUS_CODES`).
         """
         got = {sig: self._line_values(sig, factors, n) for sig in self._lines}
         where = {nm["name"]: j for j, nm in enumerate(self.names)}
@@ -237,7 +237,7 @@ class LineTable:
         return _interpolate(self._grids, table, self._coords(sig, factors, n))
 
     def _terms(self, got: dict, n: int) -> list:
-        from pinlib.buses.spi import budget_terms
+        from pinlib.engines.spi import budget_terms
 
         sa = self._analysis
         periphs = []
@@ -310,7 +310,7 @@ def _interpolate(grids: list, table: np.ndarray, coords: np.ndarray) -> np.ndarr
 def _evaluate(bus: Bus, design: Design):
     """The engine's result of a (varied) bus, and its SPI analysis (None for GPIO)."""
     if bus.protocol == "spi":
-        from pinlib.buses.spi import evaluate_spi, spi_analysis
+        from pinlib.engines.spi import evaluate_spi, spi_analysis
 
         sa = spi_analysis(bus, design)
         return evaluate_spi(bus, design, analysis=sa), sa

@@ -34,14 +34,14 @@ from typing import Any, NamedTuple
 
 import numpy as np
 
-from pinlib.buses import opendrain as od
-from pinlib.buses.limits import OpenDrainLimits
 from pinlib.core import eseries
 from pinlib.core.quantity import Threshold
-from pinlib.design import Bus, Design, Device, Segment
+from pinlib.engines import opendrain as od
+from pinlib.engines.limits import OpenDrainLimits
 from pinlib.library.schema import Part
+from pinlib.model.design import Bus, Design, Device, Segment
+from pinlib.model.result import STATUSES, max_margin, min_margin, status_codes
 from pinlib.physics import pullup as pu
-from pinlib.result import STATUSES, max_margin, min_margin, status_codes
 from pinlib.standards import i2c as i2c_std
 
 __all__ = [

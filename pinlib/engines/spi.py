@@ -1,7 +1,7 @@
 """SPI buses: clock modes, the timing budget, the highest clock, and the bus evaluation.
 
 Two layers.  :func:`spi_analysis` and :func:`evaluate_spi` build each routed signal
-with the line engine (:func:`pinlib.buses.pushline.analyse_line`) and turn its
+with the line engine (:func:`pinlib.engines.pushline.analyse_line`) and turn its
 waveforms into plain numbers: for every peripheral, the time from a driver's datasheet
 reference to the receiver's input threshold on each signal (the *flight*, which holds
 the line delay and the edge up to the threshold), beside the parts' timing values.
@@ -54,7 +54,7 @@ trip crosses it twice (SCLK out, CIPO back), so ``2 t_pd`` per bridge.
 Every margin is ``a T - k`` with ``a`` either 1/2 or 0, so the highest clock at which
 all of them hold is found in closed form (:func:`max_clock`), not by sweeping.
 ``max_clock`` also honours every part's ``f_max`` and the edge rule of each line
-(:data:`pinlib.buses.pushline.EDGE_FRACTION` of the period).
+(:data:`pinlib.engines.pushline.EDGE_FRACTION` of the period).
 
 Limits: a signal the design does not route is not connected (no CIPO route: no read
 budget); the design gives one CS route per bus, so every peripheral's CS pin loads it
@@ -77,7 +77,10 @@ from typing import NamedTuple
 
 import numpy as np
 
-from pinlib.buses.pushline import (
+from pinlib.core import messages as M
+from pinlib.core.errors import DesignError, InputError
+from pinlib.core.quantity import format_si
+from pinlib.engines.pushline import (
     EDGE_FRACTION,
     SIGNAL_FUNCTION,
     Flight,
@@ -85,11 +88,8 @@ from pinlib.buses.pushline import (
     endpoint,
     is_bridge,
 )
-from pinlib.core import messages as M
-from pinlib.core.errors import DesignError, InputError
-from pinlib.core.quantity import format_si
-from pinlib.design import Bus, Design, Device, Line
-from pinlib.result import BusResult, check_max, check_min
+from pinlib.model.design import Bus, Design, Device, Line
+from pinlib.model.result import BusResult, check_max, check_min
 
 __all__ = [
     "SpiMode",
@@ -915,7 +915,7 @@ def max_clock_vs_t_valid(bus: Bus, design: Design, t_valid, peripheral: str | No
     Notes
     -----
     ``t_valid`` enters only the CIPO setup term, linearly, so the waveforms are solved
-    once and the whole array goes through :func:`pinlib.buses.max_clock`.
+    once and the whole array goes through :func:`pinlib.engines.max_clock`.
     """
     sa = spi_analysis(bus, design)
     tv = np.asarray(t_valid, dtype=float)

@@ -32,19 +32,27 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from pinlib.buses.limits import OpenDrainLimits, limits_for
 from pinlib.core import eseries
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError, ValidityWarning
 from pinlib.core.quantity import format_si
-from pinlib.design import Bus, Design, Device, Section, Segment
+from pinlib.engines.limits import OpenDrainLimits, limits_for
 from pinlib.library.schema import Pin
 from pinlib.library.values import Sourced
+from pinlib.model.design import Bus, Design, Device, Section, Segment
+from pinlib.model.result import (
+    BusResult,
+    Check,
+    Group,
+    SegmentResult,
+    check_max,
+    check_min,
+    check_true,
+)
 from pinlib.physics import lines as line_models
 from pinlib.physics import pullup as pu
 from pinlib.physics.pullup import Budget, budget, capacitance_from_rise
 from pinlib.physics.rc import RISE_10_90
-from pinlib.result import BusResult, Check, Group, SegmentResult, check_max, check_min, check_true
 
 __all__ = [
     "SIGNALS",

@@ -1,12 +1,12 @@
 """Push-pull buses, SPI and GPIO: the engine entry point and single GPIO nets.
 
 :func:`evaluate_bus` takes an ``spi`` or ``gpio`` bus of a loaded design and returns
-its :class:`~pinlib.result.BusResult`:
+its :class:`~pinlib.model.result.BusResult`:
 
-* every routed signal becomes a :class:`~pinlib.result.LineResult` from the line
-  engine :func:`pinlib.buses.pushline.analyse_line` (edges at the far end, lumped or
+* every routed signal becomes a :class:`~pinlib.model.result.LineResult` from the line
+  engine :func:`pinlib.engines.pushline.analyse_line` (edges at the far end, lumped or
   transmission-line model, series termination, overshoot, ringing, levels);
-* an SPI bus adds the timing budget of :mod:`pinlib.buses.spi` (setup, hold, chip
+* an SPI bus adds the timing budget of :mod:`pinlib.engines.spi` (setup, hold, chip
   select, ``f_max``, and the figures ``max_clock``, ``cipo_setup_margin``,
   ``copi_setup_margin``, ``copi_hold_margin``);
 * a GPIO bus is one or more single nets (reset, interrupt, enable), push-pull or
@@ -25,13 +25,13 @@ from __future__ import annotations
 
 from dataclasses import replace
 
-from pinlib.buses.pushline import Endpoint, analyse_line, device_supply
-from pinlib.buses.spi import evaluate_spi
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError
-from pinlib.design import Bus, Design, Device
+from pinlib.engines.pushline import Endpoint, analyse_line, device_supply
+from pinlib.engines.spi import evaluate_spi
 from pinlib.library.schema import Pin
-from pinlib.result import BusResult, Check
+from pinlib.model.design import Bus, Design, Device
+from pinlib.model.result import BusResult, Check
 
 __all__ = ["evaluate_bus", "evaluate_gpio", "gpio_pin"]
 

@@ -1,8 +1,8 @@
 """One push-pull or open-drain line: its sections, driver, loads, waveforms and checks.
 
-:func:`analyse_line` is the line engine of :mod:`pinlib.buses.pushpull` (GPIO) and
-:mod:`pinlib.buses.spi` (SPI).  It returns a :class:`LineAnalysis` holding the
-waveforms of every driver on the line and a :class:`~pinlib.result.LineResult` with
+:func:`analyse_line` is the line engine of :mod:`pinlib.engines.pushpull` (GPIO) and
+:mod:`pinlib.engines.spi` (SPI).  It returns a :class:`LineAnalysis` holding the
+waveforms of every driver on the line and a :class:`~pinlib.model.result.LineResult` with
 the figures ``load_capacitance``, ``trace_delay``, ``z0``, ``edge_rise_time``,
 ``edge_fall_time``, ``series_resistor``, ``overshoot``, ``undershoot``,
 ``transmission_line``, ``model`` and ``delay_to_edge_ratio``.
@@ -66,13 +66,13 @@ from pinlib.core import eseries
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError
 from pinlib.core.quantity import format_si
-from pinlib.design import Bus, Device, Line, Section
 from pinlib.library.schema import Pin
+from pinlib.model.design import Bus, Device, Line, Section
+from pinlib.model.result import Check, LineResult, check_max, check_min
 from pinlib.physics import driver as drv
 from pinlib.physics import lines as tl
 from pinlib.physics import rc
 from pinlib.physics import waveform as wf
-from pinlib.result import Check, LineResult, check_max, check_min
 
 __all__ = [
     "LONG_LINE_FRACTION",
