@@ -10,7 +10,8 @@ Every figure comes from the engines.  A widget writes the design its controls de
 (``pinlib.design/1`` text, built with tomlkit), loads it with
 :func:`pinlib.model.design.design_from_text` and evaluates it with
 :mod:`pinlib.engines.dispatch`; the arrays each chart draws come from
-:mod:`pinlib.plotdata` and the chart specifications from :mod:`pinlib.charts`.  Nothing here computes an engineering figure; it formats.
+:mod:`pinlib.plotdata` and the chart specifications from :mod:`pinlib.charts`.
+Nothing here computes an engineering figure; it formats.
 
 Charts
 ------
