@@ -683,7 +683,7 @@ def _fn(name: str) -> str:
 
 def fail_rgb() -> str:
     """pinlib's fail colour as the browser writes a computed colour."""
-    from pinlib import charts
+    from pinlib.present import charts
 
     h = charts.FAIL.lstrip("#")
     r, g, b = (int(h[i:i + 2], 16) for i in (0, 2, 4))

@@ -273,10 +273,10 @@ def test_the_detectors_find_each_problem_and_only_those(chromium, bad):
         assert len(outputs) == 1 and "Traceback" in outputs[0], outputs
         assert marks == ["a bare number has no unit"]
         # a text repr in place of a widget
-        page.set_content(_PAGE.format(**{**_GOOD, "output": "&lt;pinlib.widgets.spibudget."
+        page.set_content(_PAGE.format(**{**_GOOD, "output": "&lt;pinlib.present.widgets.spibudget."
                                                              "SpiBudget at 0x7fa0e80e3dd0&gt;"}))
         assert book.error_outputs() == [
-            "a text repr instead of a widget: <pinlib.widgets.spibudget.SpiBudget at "
+            "a text repr instead of a widget: <pinlib.present.widgets.spibudget.SpiBudget at "
             "0x7fa0e80e3dd0>"]
         # a request beyond 127.0.0.1 is aborted and recorded
         guard.where = "detectors"

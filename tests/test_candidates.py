@@ -1,4 +1,4 @@
-"""Tests of the candidate ranking (pinlib.candidates) and ``pinlib candidates``: the
+"""Tests of the candidate ranking (pinlib.studies.candidates) and ``pinlib candidates``: the
 vectorized ranking against a per-candidate evaluation with the engines, on the whole
 built-in library."""
 
@@ -12,12 +12,12 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from pinlib import candidates as cand
 from pinlib.cli import main
 from pinlib.core.errors import DesignError, InputError
 from pinlib.library.loader import Library, load_library
 from pinlib.library.values import Sourced
 from pinlib.model.design import load_design
+from pinlib.studies import candidates as cand
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"

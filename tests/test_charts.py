@@ -1,4 +1,4 @@
-"""Tests of pinlib.charts: Vega-Lite specs, their SVG rendering, determinism, lazy imports.
+"""Tests of pinlib.present.charts: Vega-Lite specs, their SVG rendering, determinism, lazy imports.
 
 The charts draw what the engines return; the inputs here are small invented arrays
 whose displayed values follow from the SI prefixes, so the checks are on the spec and
@@ -15,8 +15,8 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from pinlib import charts
 from pinlib.core.errors import InputError
+from pinlib.present import charts
 
 pytest.importorskip("altair")
 pytest.importorskip("vl_convert")
@@ -190,7 +190,7 @@ def test_legend_colours_stay_apart_for_colour_blind_readers(name):
 
 
 def test_every_series_pinlib_draws_has_its_own_fixed_colour():
-    from pinlib import plotdata
+    from pinlib.present import plotdata
 
     comps = {c for terms in plotdata.BUDGET_COMPONENTS.values() for _, _, c in terms}
     edges = [plotdata._curve_name(e, lv, 0.0) for e in ("rise", "fall")
@@ -825,7 +825,7 @@ def test_limit_lines_lie_inside_the_frame():
 
 # --------------------------------------------------------------------------- imports
 def test_chart_libraries_stay_out_of_the_command_line_import_path():
-    code = ("import sys; import pinlib.cli, pinlib.engines.dispatch, pinlib.charts; "
+    code = ("import sys; import pinlib.cli, pinlib.engines.dispatch, pinlib.present.charts; "
             "bad = sorted(m for m in ('altair', 'vl_convert') if m in sys.modules); "
             "assert not bad, bad")
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,

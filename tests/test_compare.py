@@ -16,7 +16,10 @@ from pathlib import Path
 import pytest
 
 from pinlib.cli import main
-from pinlib.compare import (
+from pinlib.core.errors import InputError, UnitError
+from pinlib.engines.dispatch import check_design
+from pinlib.model.design import load_design
+from pinlib.studies.compare import (
     ChangeList,
     can_serve,
     compare,
@@ -30,9 +33,6 @@ from pinlib.compare import (
     swapped_text,
     value_label,
 )
-from pinlib.core.errors import InputError, UnitError
-from pinlib.engines.dispatch import check_design
-from pinlib.model.design import load_design
 
 # ---------------------------------------------------------------- invented test data
 

@@ -1,4 +1,4 @@
-"""Tests of pinlib.labels: readable names of figure and check ids, each figure shown once.
+"""Tests of pinlib.present.labels: readable names of figure and check ids, each figure shown once.
 
 The rules are checked on figures the engines return for the demo design and for made-up
 values where the lines of a bus differ.
@@ -13,7 +13,14 @@ from pathlib import Path
 import pytest
 
 from pinlib.engines.dispatch import check_file
-from pinlib.labels import FIGURES, check_label, figure_label, humanize, short_label, shown_figures
+from pinlib.present.labels import (
+    FIGURES,
+    check_label,
+    figure_label,
+    humanize,
+    short_label,
+    shown_figures,
+)
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"
@@ -77,8 +84,9 @@ def test_shown_figures_rules(values, kept):
 
 
 def test_labels_import_no_widget_or_chart():
-    code = ("import sys, pinlib.labels; "
-            "bad = [m for m in ('ipywidgets', 'altair', 'pinlib.widgets', 'pinlib.charts') "
+    code = ("import sys, pinlib.present.labels; "
+            "bad = [m for m in ('ipywidgets', 'altair', 'pinlib.present.widgets', "
+            "'pinlib.present.charts') "
             "if m in sys.modules]; print(bad); sys.exit(1 if bad else 0)")
     run = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                          timeout=60)

@@ -1342,9 +1342,9 @@ def _(env):
     return _fails(lambda e: spi.max_clock_vs_t_valid(*_bus(e), [5e-9]), env)
 
 
-# ---------------------------------------------------------------- pinlib/compare.py
+# ---------------------------------------------------------------- pinlib/studies/compare.py
 def _compare():
-    from pinlib import compare
+    from pinlib.studies import compare
     return compare
 
 
@@ -1395,49 +1395,49 @@ def _(env):
     return _fails(lambda e: compare.swapped_text(design, {"U2": "rtc-i2c"}), env)
 
 
-# ---------------------------------------------------------------- pinlib/candidates.py
+# ---------------------------------------------------------------- pinlib/studies/candidates.py
 @case("UNKNOWN_CATEGORY")
 def _(env):
-    from pinlib.candidates import eligible
+    from pinlib.studies.candidates import eligible
     return _fails(lambda e: eligible(e.design(I2C_BUS), "U2", ["gadget"]), env)
 
 
-# ---------------------------------------------------------------- pinlib/whatif.py
+# ---------------------------------------------------------------- pinlib/studies/whatif.py
 @case("UNKNOWN_DISTRIBUTION")
 def _(env):
     import numpy as np
 
-    from pinlib.whatif import draw
+    from pinlib.studies.whatif import draw
     return _fails(lambda e: draw(np.random.default_rng(0), 2, 1, "triangular"), env)
 
 
 @case("NOT_A_PROPORTION")
 def _(env):
-    from pinlib.whatif import wilson_interval
+    from pinlib.studies.whatif import wilson_interval
     return _fails(lambda e: wilson_interval(5, 4), env)
 
 
 @case("NOT_A_CONFIDENCE")
 def _(env):
-    from pinlib.whatif import wilson_interval
+    from pinlib.studies.whatif import wilson_interval
     return _fails(lambda e: wilson_interval(2, 4, confidence=1.5), env)
 
 
 @case("TOO_FEW_SAMPLES")
 def _(env):
-    from pinlib.whatif import monte_carlo
+    from pinlib.studies.whatif import monte_carlo
     return _fails(lambda e: monte_carlo(e.design(I2C_BUS), 0), env)
 
 
 @case("CHUNK_NOT_POSITIVE")
 def _(env):
-    from pinlib.whatif import monte_carlo
+    from pinlib.studies.whatif import monte_carlo
     return _fails(lambda e: monte_carlo(e.design(I2C_BUS), 4, chunk=0), env)
 
 
-# ---------------------------------------------------------------- pinlib/plotdata.py
+# ---------------------------------------------------------------- pinlib/present/plotdata.py
 def _plotdata():
-    from pinlib import plotdata
+    from pinlib.present import plotdata
     return plotdata
 
 
@@ -1480,9 +1480,9 @@ def _(env):
     return _fails(lambda e: plotdata.timing_budget_data(*_bus(e, body)), env)
 
 
-# ---------------------------------------------------------------- pinlib/charts.py
+# ---------------------------------------------------------------- pinlib/present/charts.py
 def _charts():
-    from pinlib import charts
+    from pinlib.present import charts
     return charts
 
 
@@ -1600,10 +1600,10 @@ def _(env):
     return _fails(lambda e: _charts().histogram([1e-9], unit="s", label="x", bins=0), env)
 
 
-# ---------------------------------------------------------------- pinlib/widgets.py
+# ---------------------------------------------------------------- pinlib/present/widgets.py
 def _widgets():
     pytest.importorskip("ipywidgets")
-    from pinlib import widgets
+    from pinlib.present import widgets
     return widgets
 
 
@@ -1676,8 +1676,8 @@ def _(env):
     return r.errors["part"]
 
 
-# ---------------------------------------------------------------- pinlib/review.py
-# Samples of one check in the plain protocol of pinlib.review, with a limit kind the
+# ---------------------------------------------------------------- pinlib/present/review.py
+# Samples of one check in the plain protocol of pinlib.present.review, with a limit kind the
 # histogram refuses ("minimum" for "min"), so that its chart cannot be drawn.
 MC_REFUSED = {"id": "rise-time", "samples": [1.0e-7, 1.5e-7, 2.0e-7, 2.5e-7], "limit": 3e-7,
               "unit": "s", "kind": "minimum"}
@@ -1693,7 +1693,7 @@ def _histogram_refusal() -> str:
 
 def _review(env, render: str, mc) -> str:
     """The review of an I2C design with Monte Carlo samples, rendered by ``render``."""
-    from pinlib import review
+    from pinlib.present import review
     design = env.design(I2C_BUS)
     return getattr(review, render)(design, _check(design), mc=mc)
 

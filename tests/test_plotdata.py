@@ -1,4 +1,4 @@
-"""Tests of pinlib.plotdata: what the edge chart's data says about itself, and that every
+"""Tests of pinlib.present.plotdata: what the edge chart's data says about itself, and that every
 series it names has its fixed chart colour.
 
 The engine figures behind these arrays are tested against the result in
@@ -12,8 +12,8 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from pinlib import charts, plotdata
 from pinlib.model.design import load_design
+from pinlib.present import charts, plotdata
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"

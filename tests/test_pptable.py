@@ -151,7 +151,7 @@ def test_multilinear_interpolation_is_exact_on_a_bilinear_function():
 
 
 def test_monte_carlo_of_an_spi_bus_reports_its_table(link):
-    from pinlib.whatif import monte_carlo
+    from pinlib.studies.whatif import monte_carlo
 
     design, bus = link
     result = monte_carlo(design, 80, seed=5)

@@ -1,5 +1,5 @@
-"""Tests of the design-review report (pinlib.review), its chart data (pinlib.plotdata)
-and ``pinlib report``.
+"""Tests of the design-review report (pinlib.present.review), its chart data
+(pinlib.present.plotdata) and ``pinlib report``.
 
 The demo design (an invented scenario, workbooks/designs/demo-board.toml) is reported
 once per module.  The checks are on what the report must hold (the caution, every
@@ -38,13 +38,13 @@ import numpy as np
 import pytest
 from pngcheck import png_pixels
 
-from pinlib import plotdata, review
 from pinlib.cli import main
-from pinlib.compare import compare_with_snapshot, save_snapshot, snapshot, value_label
 from pinlib.engines.dispatch import check_design
 from pinlib.model.design import load_design
 from pinlib.model.result import CAUTION
 from pinlib.physics import pullup as pu
+from pinlib.present import plotdata, review
+from pinlib.studies.compare import compare_with_snapshot, save_snapshot, snapshot, value_label
 
 pytest.importorskip("altair")
 pytest.importorskip("vl_convert")
@@ -560,8 +560,8 @@ def test_command_arguments(tmp_path, capsys):
 
 
 def test_command_with_monte_carlo(tmp_path, capsys):
-    pytest.importorskip("pinlib.whatif")
-    from pinlib import whatif
+    pytest.importorskip("pinlib.studies.whatif")
+    from pinlib.studies import whatif
 
     out = tmp_path / "mc.html"
     assert main(["report", str(DEMO), "--html", str(out), "--monte-carlo", "300",
@@ -582,8 +582,8 @@ def test_command_with_monte_carlo(tmp_path, capsys):
 
 
 def test_review_of_a_monte_carlo_run(demo):
-    pytest.importorskip("pinlib.whatif")
-    from pinlib import whatif
+    pytest.importorskip("pinlib.studies.whatif")
+    from pinlib.studies import whatif
 
     design, result = demo
     mc = whatif.monte_carlo(design, 500, seed=11, progress=False)

@@ -1,4 +1,4 @@
-"""Tests of corners and Monte Carlo (pinlib.whatif) and of ``pinlib check --corners
+"""Tests of corners and Monte Carlo (pinlib.studies.whatif) and of ``pinlib check --corners
 --monte-carlo``: against the engine's own results, a closed-form probability, and
 published confidence intervals."""
 
@@ -13,12 +13,12 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from pinlib import whatif
 from pinlib.cli import main
 from pinlib.core.errors import InputError
 from pinlib.engines.dispatch import check_design
 from pinlib.model.design import load_design
 from pinlib.physics.rc import RISE_30_70
+from pinlib.studies import whatif
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"

@@ -1,4 +1,4 @@
-"""Tests of the workbench widgets (pinlib.widgets) and of one workbook exported to HTML.
+"""Tests of the workbench widgets (pinlib.present.widgets) and of one workbook exported to HTML.
 
 The widget classes are driven from Python the way a user turns their knobs (``set``
 and the named methods).  What each test holds them to:
@@ -34,13 +34,13 @@ pytest.importorskip("ipywidgets")
 pytest.importorskip("altair")
 pytest.importorskip("vl_convert")
 
-from pinlib import charts  # noqa: E402
 from pinlib.core.errors import DesignError, InputError  # noqa: E402
 from pinlib.core.tomlfile import tomllib  # noqa: E402
 from pinlib.engines.dispatch import check_design, check_file  # noqa: E402
 from pinlib.library import load_library  # noqa: E402
 from pinlib.model.design import design_from_text, load_design  # noqa: E402
-from pinlib.widgets import (  # noqa: E402
+from pinlib.present import charts  # noqa: E402
+from pinlib.present.widgets import (  # noqa: E402
     BusBuilder,
     LineExplorer,
     PartRecorder,
@@ -300,7 +300,7 @@ def line(library):
 def test_line_svg_is_the_uncached_render(line):
     # derived from vl-convert's vegalite_to_svg of each whole spec: the widget's redraws,
     # which reuse the compiled layout, must give the same SVG as a render from scratch
-    from pinlib.widgets.markup import inline_svg
+    from pinlib.present.widgets.markup import inline_svg
 
     for length in (0.28, 0.30, 0.9, 0.28):
         line.set(series="auto", length=length)
@@ -530,7 +530,7 @@ def test_swap_refused_with_the_reason(explorer):
 
 
 def test_swap_candidates_ranking(explorer, monkeypatch):
-    pytest.importorskip("pinlib.candidates")
+    pytest.importorskip("pinlib.studies.candidates")
     explorer.ref.value = "U4"
     r = explorer.ranking
     assert r is not None and r.ref == "U4" and r.candidates
@@ -540,10 +540,11 @@ def test_swap_candidates_ranking(explorer, monkeypatch):
 
     real = importlib.util.find_spec
     monkeypatch.setattr(importlib.util, "find_spec",
-                        lambda name, *a: None if name == "pinlib.candidates" else real(name, *a))
+                        lambda name, *a: (None if name == "pinlib.studies.candidates"
+                                          else real(name, *a)))
     explorer.update()
     assert explorer.ranking is None and explorer.candidates_box.layout.display == "none"
-    assert "pinlib.candidates" in explorer.candidates_note.value
+    assert "pinlib.studies.candidates" in explorer.candidates_note.value
 
 
 def test_find_file_from_a_subfolder(monkeypatch):
@@ -559,7 +560,8 @@ def test_find_file_from_a_subfolder(monkeypatch):
 
 def test_widgets_stay_out_of_the_command_line_import_path():
     code = ("import sys, pinlib.cli, pinlib.engines.dispatch; "
-            "bad = [m for m in ('ipywidgets', 'pinlib.widgets', 'altair') if m in sys.modules]; "
+            "bad = [m for m in ('ipywidgets', 'pinlib.present.widgets', 'altair') "
+            "if m in sys.modules]; "
             "print(bad); sys.exit(1 if bad else 0)")
     run = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                          timeout=60)

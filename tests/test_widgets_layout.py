@@ -30,7 +30,7 @@ import ipywidgets as W  # noqa: E402
 
 from pinlib.core.errors import InputError  # noqa: E402
 from pinlib.library import load_library  # noqa: E402
-from pinlib.widgets import (  # noqa: E402
+from pinlib.present.widgets import (  # noqa: E402
     BusBuilder,
     LineExplorer,
     PartRecorder,

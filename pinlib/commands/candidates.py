@@ -69,8 +69,8 @@ def _positive(text: str) -> int:
 
 
 def run(args) -> int:
-    from pinlib.candidates import rank_candidates
     from pinlib.model.design import load_design
+    from pinlib.studies.candidates import rank_candidates
 
     design = load_design(args.design, library_folders=args.library)
     ranking = rank_candidates(design, args.ref, categories=args.category or None,

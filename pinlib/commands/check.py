@@ -92,9 +92,9 @@ def seed_type(text):
 
 
 def run(args) -> int:
-    from pinlib.compare import DEFAULT_THRESHOLD, compare_with_snapshot, save_snapshot
     from pinlib.engines.dispatch import check_design
     from pinlib.model.design import load_design
+    from pinlib.studies.compare import DEFAULT_THRESHOLD, compare_with_snapshot, save_snapshot
 
     design = load_design(args.design, library_folders=args.library)
     if getattr(args, "seed", None) is not None and getattr(args, "monte_carlo", None) is None:
@@ -116,7 +116,7 @@ def run(args) -> int:
         json.dump(out, sys.stdout, indent=2, ensure_ascii=False)
         sys.stdout.write("\n")
     else:
-        from pinlib.report import format_text
+        from pinlib.present.report import format_text
 
         sys.stdout.write(format_text(result))
         if changes is not None:
@@ -133,11 +133,11 @@ def _what_if(design, args) -> dict:
     out = {}
     progress = True if getattr(args, "progress", False) else None
     if getattr(args, "corners", False):
-        from pinlib.whatif import corners
+        from pinlib.studies.whatif import corners
 
         out["corners"] = corners(design, progress=progress)
     if getattr(args, "monte_carlo", None) is not None:
-        from pinlib.whatif import monte_carlo
+        from pinlib.studies.whatif import monte_carlo
 
         out["monte_carlo"] = monte_carlo(design, args.monte_carlo, seed=args.seed,
                                          progress=progress)

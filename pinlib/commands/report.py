@@ -2,7 +2,7 @@
 
 The design is evaluated (as ``pinlib check`` does), compared with its saved snapshot
 when there is one, and written as a self-contained HTML page or as Markdown with its
-charts as SVG files in a folder beside it (:mod:`pinlib.review`).  Every file is
+charts as SVG files in a folder beside it (:mod:`pinlib.present.review`).  Every file is
 written atomically: a reader sees the old report or the new one, never half of one.
 """
 
@@ -35,7 +35,7 @@ exit status: 0 pass or warn, 1 a check fails (the report is written either way),
 """
 
 #: Where the Monte Carlo engine is looked for (see :func:`_monte_carlo`).
-MONTE_CARLO_MODULES = ("pinlib.whatif",)
+MONTE_CARLO_MODULES = ("pinlib.studies.whatif",)
 
 
 def _positive_int(text: str) -> int:
@@ -92,7 +92,7 @@ def chart_dir_for(md_path: str | Path) -> str:
 def _monte_carlo(design, n: int, seed: int | None):
     """Run the Monte Carlo engine when it is installed.
 
-    :func:`pinlib.whatif.monte_carlo` (the first of :data:`MONTE_CARLO_MODULES` that
+    :func:`pinlib.studies.whatif.monte_carlo` (the first of :data:`MONTE_CARLO_MODULES` that
     imports and has ``monte_carlo(design, n, *, seed=None)``); it shows progress on a
     terminal.  Without it the option is refused with a message (exit 2).
     """
@@ -117,12 +117,12 @@ def _monte_carlo(design, n: int, seed: int | None):
 
 
 def run(args) -> int:
-    from pinlib.compare import DEFAULT_THRESHOLD, compare_with_snapshot
     from pinlib.core.errors import InputError
     from pinlib.core.tomlfile import atomic_write
     from pinlib.engines.dispatch import check_design
     from pinlib.model.design import load_design
-    from pinlib.review import build_review
+    from pinlib.present.review import build_review
+    from pinlib.studies.compare import DEFAULT_THRESHOLD, compare_with_snapshot
 
     if args.seed is not None and args.monte_carlo is None:
         raise InputError(M.SEED_WITHOUT_MONTE_CARLO, field="--seed", value=args.seed,

@@ -2,9 +2,9 @@
 
 The design is evaluated as it is and with the substitutions; the figures are printed
 side by side with the checks whose status changed and the part values behind the
-change (:func:`pinlib.compare.compare`).  A part that cannot serve the position —
+change (:func:`pinlib.studies.compare.compare`).  A part that cannot serve the position —
 a pin function missing, a drive the position does not allow
-(:func:`pinlib.compare.can_serve`) — is refused with the reason before anything is
+(:func:`pinlib.studies.compare.can_serve`) — is refused with the reason before anything is
 evaluated: exit 2, the design file untouched.  With ``--write`` the design file is
 edited in place after the evaluation succeeds: only the ``part = "..."`` of the
 substituted devices changes; comments and formatting stay.
@@ -42,8 +42,8 @@ _ASSIGN = re.compile(r"^\s*([^=\s]+)\s*=\s*([a-z0-9][a-z0-9-]*)\s*$")
 
 def threshold_type(text: str) -> float:
     """An argparse type for ``--threshold``: ``5%`` or ``"5 %"`` -> 0.05."""
-    from pinlib.compare import parse_change_threshold
     from pinlib.core.errors import PinlibError
+    from pinlib.studies.compare import parse_change_threshold
 
     try:
         return parse_change_threshold(text)
@@ -97,7 +97,7 @@ def parse_assignments(items) -> dict[str, str]:
 
 def _refusals(design, swaps: dict[str, str]) -> list[dict]:
     """Each substitution's reasons for refusal (empty list: all can serve)."""
-    from pinlib.compare import swap_refusals
+    from pinlib.studies.compare import swap_refusals
 
     refused = []
     for ref, part_id in swaps.items():
@@ -108,7 +108,7 @@ def _refusals(design, swaps: dict[str, str]) -> list[dict]:
 
 
 def _table(rows) -> list[str]:
-    from pinlib.compare import format_change, format_figure
+    from pinlib.studies.compare import format_change, format_figure
 
     out = []
     name_w = max([len(r.name) for r in rows] + [6]) + 2
@@ -131,18 +131,18 @@ def _table(rows) -> list[str]:
 
 
 def run(args) -> int:
-    from pinlib.compare import (
+    from pinlib.core.errors import WriteError
+    from pinlib.core.tomlfile import atomic_write, file_lock
+    from pinlib.engines.dispatch import check_design
+    from pinlib.model.design import load_design
+    from pinlib.model.result import CAUTION
+    from pinlib.studies.compare import (
         DEFAULT_THRESHOLD,
         compare,
         figure_rows,
         snapshot,
         swapped_text,
     )
-    from pinlib.core.errors import WriteError
-    from pinlib.core.tomlfile import atomic_write, file_lock
-    from pinlib.engines.dispatch import check_design
-    from pinlib.model.design import load_design
-    from pinlib.model.result import CAUTION
 
     threshold = DEFAULT_THRESHOLD if args.threshold is None else args.threshold
     swaps = parse_assignments(args.swaps)

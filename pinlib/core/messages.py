@@ -10,7 +10,7 @@ A constant with ``{placeholders}`` is a template, filled with ``str.format``::
 The other constants are the texts of pinlib's warnings (the ``ValidityWarning`` of
 ``pinlib/physics/lines.py`` and of ``pinlib/physics/waveform.py``, the ``FitWarning`` of
 ``pinlib/physics/driver.py``) and the sentences that the design-review report
-(``pinlib/review.py``) prints where a chart could not be drawn, no sampled check varies,
+(``pinlib/present/review.py``) prints where a chart could not be drawn, no sampled check varies,
 or there is no snapshot to compare with.
 
 ``tests/test_messages.py`` triggers each of them once and checks the text.
@@ -252,7 +252,7 @@ NO_SUCH_PERIPHERAL = "no such peripheral on the bus"
 NO_T_VALID_TO_VARY = "the peripheral records no t_valid to vary"
 
 # ---------------------------------------------------------------- studies
-# pinlib/compare.py
+# pinlib/studies/compare.py
 NO_SNAPSHOT_PLACE = "the design was not loaded from a file, so it has no snapshot place"
 NOT_A_RESULT = "not a result"
 SNAPSHOT_NOT_JSON = "the snapshot is not valid JSON: {detail}"
@@ -260,15 +260,15 @@ NOT_A_SNAPSHOT = "not a pinlib result snapshot"
 NEGATIVE_THRESHOLD = "a negative threshold"
 EDIT_CHANGES_MORE = "editing the design file would change more than the parts"
 EDIT_LOST_PART = "the edited design does not hold the new part"
-# pinlib/candidates.py
+# pinlib/studies/candidates.py
 UNKNOWN_CATEGORY = "unknown category"
-# pinlib/whatif.py
+# pinlib/studies/whatif.py
 UNKNOWN_DISTRIBUTION = "unknown distribution"
 NOT_A_PROPORTION = "not a proportion"
 NOT_A_CONFIDENCE = "not a confidence level"
 TOO_FEW_SAMPLES = "too few samples"
 CHUNK_NOT_POSITIVE = "chunk must be positive"
-# pinlib/plotdata.py
+# pinlib/present/plotdata.py
 DRAWN_FOR_PROTOCOLS = "{what} is drawn for {protocols} buses"
 NO_EVALUATED_LINE = "no evaluated line of that name on the bus"
 DOES_NOT_DRIVE_LINE = "the device does not drive this line"
@@ -276,7 +276,7 @@ UNKNOWN_OPEN_DRAIN_LINE = "unknown open-drain line"
 NO_SUCH_SEGMENT = "no segment of that id on the bus"
 BUDGET_DOES_NOT_ADD_UP = "the timing budget terms do not add up to the engine's margin"
 
-# ---------------------------------------------------------------- pinlib/charts.py
+# ---------------------------------------------------------------- pinlib/present/charts.py
 ARRAY_DIMENSIONS = "array with {ndim} dimension(s)"
 CANNOT_BE_DRAWN = "cannot be drawn"
 RP_BOUNDS_SHAPE = "rp_min and rp_max must be floats or arrays as long as cb"
@@ -298,7 +298,7 @@ NO_FINITE_SAMPLE = "no finite sample"
 UNKNOWN_LIMIT_KIND = "unknown limit kind"
 TOO_FEW_BINS = "too few bins"
 
-# ---------------------------------------------------------------- pinlib/widgets/
+# ---------------------------------------------------------------- pinlib/present/widgets/
 NOT_A_LISTED_VALUE = "not a value of the {what}"
 UNKNOWN_SETTING = "unknown setting"
 OUTSIDE_CONTROL_RANGE = "outside the control's range"
@@ -310,7 +310,7 @@ NO_SPI_BUS = "the design has no SPI bus"
 NO_SPI_BUS_OF_ID = "no SPI bus of that id"
 NO_TEAM_PART = "no team part to record into"
 
-# ---------------------------------------------------------------- pinlib/review.py
+# ---------------------------------------------------------------- pinlib/present/review.py
 # Sentences the design-review report prints in place of what it could not draw or
 # compare (whole sentences, not the problem of an error)
 CHART_NOT_DRAWN = "Chart not drawn: {error}"
@@ -373,19 +373,19 @@ MODULES = (
     "pinlib.engines.pushline",
     "pinlib.engines.pushpull",
     "pinlib.engines.spi",
-    "pinlib.compare",
-    "pinlib.candidates",
-    "pinlib.whatif",
-    "pinlib.plotdata",
-    "pinlib.charts",
-    "pinlib.widgets.common",
-    "pinlib.widgets.designdoc",
-    "pinlib.widgets.busbuilder",
-    "pinlib.widgets.lineexplorer",
-    "pinlib.widgets.spibudget",
-    "pinlib.widgets.recorder",
-    "pinlib.widgets.swaps",
-    "pinlib.review",
+    "pinlib.studies.compare",
+    "pinlib.studies.candidates",
+    "pinlib.studies.whatif",
+    "pinlib.present.plotdata",
+    "pinlib.present.charts",
+    "pinlib.present.widgets.common",
+    "pinlib.present.widgets.designdoc",
+    "pinlib.present.widgets.busbuilder",
+    "pinlib.present.widgets.lineexplorer",
+    "pinlib.present.widgets.spibudget",
+    "pinlib.present.widgets.recorder",
+    "pinlib.present.widgets.swaps",
+    "pinlib.present.review",
     "pinlib.commands.check",
     "pinlib.commands.report",
     "pinlib.commands.candidates",

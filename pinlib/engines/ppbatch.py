@@ -1,6 +1,6 @@
 """The push-pull engine's checks (SPI, GPIO) over a batch of variants of one bus.
 
-:mod:`pinlib.whatif` samples a design's tolerances; this module gives it the push-pull
+:mod:`pinlib.studies.whatif` samples a design's tolerances; this module gives it the push-pull
 buses.  A variant is the bus with its own supply rails (``supply_tolerance``), its own
 line lengths (``length_tolerance``: every section of a line scaled together) and its
 own extra line capacitance (``capacitance_tolerance``).  The design format gives a
@@ -67,7 +67,7 @@ def parameter_specs(bus: Bus) -> list[tuple]:
     -------
     list of tuple
         One per toleranced quantity, each key once (a rail shared with other buses
-        carries the same key as in :mod:`pinlib.whatif`). [1]
+        carries the same key as in :mod:`pinlib.studies.whatif`). [1]
     """
     from pinlib.core.quantity import format_si
 

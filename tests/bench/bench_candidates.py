@@ -3,8 +3,8 @@
 10,000 generated I2C targets (invented values: pin capacitance, leakage, sink current
 and input threshold varied from part to part) are added to the merged library, and
 every one is ranked for the EEPROM position of a small I2C design:
-:func:`pinlib.candidates.rank_candidates` (one numpy batch per group of candidates of
-the same structure) against :func:`pinlib.candidates.rank_candidates_slow` (the design
+:func:`pinlib.studies.candidates.rank_candidates` (one numpy batch per group of candidates of
+the same structure) against :func:`pinlib.studies.candidates.rank_candidates_slow` (the design
 rebuilt with each candidate and checked by the engine, one at a time).  The two
 rankings must be the same, candidate by candidate, before any time is reported.
 """
@@ -16,10 +16,10 @@ import tempfile
 import time
 from pathlib import Path
 
-from pinlib import candidates as cand
 from pinlib.library.loader import load_library
 from pinlib.library.schema import Part
 from pinlib.model.design import load_design
+from pinlib.studies import candidates as cand
 from tests.bench.common import Result, median_time
 
 __all__ = ["run", "DESIGN"]

@@ -1,4 +1,4 @@
-"""Monte Carlo: boards per second drawn and checked by :func:`pinlib.whatif.monte_carlo`.
+"""Monte Carlo: boards per second drawn and checked by :func:`pinlib.studies.whatif.monte_carlo`.
 
 An I2C bus (a small design with every tolerance set) and the demo design's open-drain
 buses (a bridged I2C bus of two segments and an SMBus link).  The baseline is one
@@ -17,7 +17,7 @@ from pathlib import Path
 
 from pinlib.engines.dispatch import evaluate_bus
 from pinlib.model.design import load_design
-from pinlib.whatif import monte_carlo
+from pinlib.studies.whatif import monte_carlo
 from tests.bench.common import Result, median_time
 
 __all__ = ["run"]

@@ -23,7 +23,7 @@ TARGET = 0.150  # s, one recompute + redraw
 
 def _cases():
     from pinlib.library import load_library
-    from pinlib.widgets import BusBuilder, LineExplorer, SpiBudget
+    from pinlib.present.widgets import BusBuilder, LineExplorer, SpiBudget
 
     library = load_library(env=False)
     builder = BusBuilder(library, peripherals=["eeprom-i2c", "rtc-i2c"], length=0.14)

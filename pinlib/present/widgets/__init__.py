@@ -10,13 +10,13 @@ Every figure comes from the engines.  A widget writes the design its controls de
 (``pinlib.design/1`` text, built with tomlkit), loads it with
 :func:`pinlib.model.design.design_from_text` and evaluates it with
 :mod:`pinlib.engines.dispatch`; the arrays each chart draws come from
-:mod:`pinlib.plotdata` and the chart specifications from :mod:`pinlib.charts`.
+:mod:`pinlib.present.plotdata` and the chart specifications from :mod:`pinlib.present.charts`.
 Nothing here computes an engineering figure; it formats.
 
 Charts
 ------
 A chart is an ``ipywidgets.HTML`` whose value is the chart as inline SVG, rendered by
-vl-convert (:func:`pinlib.charts.to_svg`).  A redraw replaces that value in one message,
+vl-convert (:func:`pinlib.present.charts.to_svg`).  A redraw replaces that value in one message,
 so the old chart stays on screen until the new one is there (no flicker, as there is when
 an ``Output`` is cleared and redrawn), and a chart whose specification did not change is
 not redrawn at all.  This is preferred over ``altair.JupyterChart`` because it needs no
@@ -37,9 +37,9 @@ Modules
 ``markup`` (badges, notes, tables of figures and checks), ``designdoc`` (design text and
 trace controls), and one module per workbench: ``busbuilder`` (01), ``lineexplorer`` (02),
 ``spibudget`` (03), ``recorder`` (04), ``swaps`` (05).  Labels of figures and checks come
-from :mod:`pinlib.labels`.
+from :mod:`pinlib.present.labels`.
 
-This package imports ipywidgets, and altair through :mod:`pinlib.charts`; the command line
+This package imports ipywidgets, and altair through :mod:`pinlib.present.charts`; the command line
 and :mod:`pinlib.engines.dispatch` never import it.
 """
 
@@ -49,13 +49,13 @@ from pinlib.core.extras import need
 # the imports below come after this check on purpose
 need("ipywidgets", extra="notebook", feature="the workbook widgets")
 
-from pinlib.widgets.busbuilder import BenchReading, BusBuilder  # noqa: E402
-from pinlib.widgets.common import ChartView, StaticView, find_file  # noqa: E402
-from pinlib.widgets.lineexplorer import LineExplorer  # noqa: E402
-from pinlib.widgets.markup import checks_table, figures_table  # noqa: E402
-from pinlib.widgets.recorder import PartRecorder  # noqa: E402
-from pinlib.widgets.spibudget import ClockLimit, SpiBudget  # noqa: E402
-from pinlib.widgets.swaps import SwapExplorer  # noqa: E402
+from pinlib.present.widgets.busbuilder import BenchReading, BusBuilder  # noqa: E402
+from pinlib.present.widgets.common import ChartView, StaticView, find_file  # noqa: E402
+from pinlib.present.widgets.lineexplorer import LineExplorer  # noqa: E402
+from pinlib.present.widgets.markup import checks_table, figures_table  # noqa: E402
+from pinlib.present.widgets.recorder import PartRecorder  # noqa: E402
+from pinlib.present.widgets.spibudget import ClockLimit, SpiBudget  # noqa: E402
+from pinlib.present.widgets.swaps import SwapExplorer  # noqa: E402
 
 __all__ = [
     "ChartView",

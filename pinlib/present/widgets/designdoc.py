@@ -12,7 +12,7 @@ from pinlib.core.tomlfile import tomllib
 from pinlib.library.loader import BUILTIN_DIR, Library
 from pinlib.model.design import FORMAT as DESIGN_FORMAT
 from pinlib.model.design import Design, design_from_text
-from pinlib.widgets.common import (
+from pinlib.present.widgets.common import (
     QuantityField,
     _num,
     _Panel,
@@ -25,7 +25,7 @@ from pinlib.widgets.common import (
 
 class _Trace:
     """Trace controls: geometry (microstrip, stripline or per-length values) and length,
-    each value a :class:`~pinlib.widgets.common.QuantityField` read with its unit."""
+    each value a :class:`~pinlib.present.widgets.common.QuantityField` read with its unit."""
 
     KINDS = (("microstrip", "microstrip"), ("stripline", "stripline"),
              ("per-length values", "per-length"))

@@ -101,7 +101,7 @@ SERIES = (BLUE, WINE, SKY_BLUE, INDIGO, OLIVE, DARK_OLIVE, SAND)
 #: name, "Rs 27 Ω", is left out of the key: see :func:`series_key`).  A series keeps its
 #: colour whichever other series a redraw shows.
 SERIES_COLOURS = {
-    # edge time against load (pinlib.plotdata.edge_vs_load_data): rise blue tones,
+    # edge time against load (pinlib.present.plotdata.edge_vs_load_data): rise blue tones,
     # fall wine/sky; the dark tone without the series resistor
     "rise 10-90": INDIGO,
     "fall 10-90": WINE,
@@ -109,12 +109,12 @@ SERIES_COLOURS = {
     "fall 10-90, Rs": SKY_BLUE,
     "rise 20-80": OLIVE,
     "fall 20-80": DARK_OLIVE,
-    # far-end waveforms (pinlib.plotdata.waveform_data), the same pairs
+    # far-end waveforms (pinlib.present.plotdata.waveform_data), the same pairs
     "rise, no series R": INDIGO,
     "fall, no series R": WINE,
     "rise, Rs": BLUE,
     "fall, Rs": SKY_BLUE,
-    # timing budget components (pinlib.plotdata.BUDGET_COMPONENTS)
+    # timing budget components (pinlib.present.plotdata.BUDGET_COMPONENTS)
     "output valid (t_valid)": BLUE,
     "data or CS flight": WINE,
     "SCLK flight": SKY_BLUE,

@@ -30,7 +30,6 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from pinlib.compare import can_serve, positions
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.progress import progress_bar
@@ -40,6 +39,7 @@ from pinlib.engines import opendrain as od
 from pinlib.library.schema import CATEGORIES, Part
 from pinlib.model.design import Bus, Design, Device
 from pinlib.model.result import STATUSES, BusResult, worst
+from pinlib.studies.compare import can_serve, positions
 
 __all__ = [
     "FORMAT",

@@ -16,16 +16,15 @@ from pathlib import Path
 import ipywidgets as W
 import numpy as np
 
-from pinlib import charts, plotdata
-from pinlib.compare import format_change, format_figure
 from pinlib.core import messages as M
 from pinlib.core.errors import PinlibError
 from pinlib.core.quantity import format_si
 from pinlib.engines.dispatch import check_design
-from pinlib.labels import check_label, figure_label, short_label, shown_figures
 from pinlib.model.design import load_design
-from pinlib.report import format_value
-from pinlib.widgets.common import (
+from pinlib.present import charts, plotdata
+from pinlib.present.labels import check_label, figure_label, short_label, shown_figures
+from pinlib.present.report import format_value
+from pinlib.present.widgets.common import (
     ChartView,
     StaticView,
     _Panel,
@@ -40,7 +39,7 @@ from pinlib.widgets.common import (
     style,
     with_button,
 )
-from pinlib.widgets.markup import (
+from pinlib.present.widgets.markup import (
     BLOCK,
     CELL,
     HEAD,
@@ -56,6 +55,7 @@ from pinlib.widgets.markup import (
     margin,
     note,
 )
+from pinlib.studies.compare import format_change, format_figure
 
 #: How many candidates the ranking table shows.
 TOP = 10
@@ -84,7 +84,7 @@ class SwapExplorer(_Panel):
     swaps : dict of str to str
         New part id by reference designator.
     changes : ChangeList or None
-        :func:`pinlib.compare.compare` of the two snapshots.
+        :func:`pinlib.studies.compare.compare` of the two snapshots.
     refused : list of str
         Why the last substitution asked for was refused (empty when applied).
     ref : ipywidgets.Dropdown
@@ -94,7 +94,7 @@ class SwapExplorer(_Panel):
     before, after : ChartView
         That bus's chart before and after the substitutions.
     ranking : object or None
-        What :mod:`pinlib.candidates` ranked for the position (in the design with the
+        What :mod:`pinlib.studies.candidates` ranked for the position (in the design with the
         substitutions), when that module exists.
     """
 
@@ -152,7 +152,7 @@ class SwapExplorer(_Panel):
     # ---------------------------------------------------------------- loading
     def load(self, path: str | os.PathLike) -> None:
         """Load a design file and evaluate it as saved (clears the substitutions)."""
-        from pinlib.compare import snapshot
+        from pinlib.studies.compare import snapshot
 
         design = load_design(find_file(path), library_folders=self.folders)
         result = check_design(design)
@@ -198,7 +198,7 @@ class SwapExplorer(_Panel):
 
     def refusals(self, ref: str, part_id: str) -> list[str]:
         """Why ``part_id`` cannot stand in ``ref``'s position (empty: it can)."""
-        from pinlib.compare import swap_refusals
+        from pinlib.studies.compare import swap_refusals
 
         return swap_refusals(self.design, ref, part_id, field="ref")[1]
 
@@ -253,7 +253,7 @@ class SwapExplorer(_Panel):
     def update(self) -> None:
         """Rerun the design with the substitutions (when they changed) and show the
         position selected: change list, charts, ranking, checks."""
-        from pinlib.compare import compare, snapshot
+        from pinlib.studies.compare import compare, snapshot
 
         if self._quiet:
             return
@@ -360,7 +360,7 @@ class SwapExplorer(_Panel):
     @staticmethod
     def _figure_rows(figures) -> list[str]:
         """Rows of moved figures, by segment or line, each figure once
-        (:func:`pinlib.labels.shown_figures`)."""
+        (:func:`pinlib.present.labels.shown_figures`)."""
         by_path: dict[str, dict] = {}
         for c in figures:
             by_path.setdefault(c.path, {})[c.name] = c
@@ -428,16 +428,16 @@ class SwapExplorer(_Panel):
     # ---------------------------------------------------------------- ranking
     def _rank(self) -> None:
         """The candidates ranking of the selected position in the design as it is now
-        (with the substitutions), when :mod:`pinlib.candidates` is installed; otherwise
+        (with the substitutions), when :mod:`pinlib.studies.candidates` is installed; otherwise
         the panel is hidden and a note says why."""
-        if importlib.util.find_spec("pinlib.candidates") is None:
+        if importlib.util.find_spec("pinlib.studies.candidates") is None:
             self.ranking = self._ranked = None
             self.candidates_box.layout.display = "none"
             self.candidates_note.value = note(
-                "The candidates ranking needs pinlib.candidates, which this installation "
+                "The candidates ranking needs pinlib.studies.candidates, which this installation "
                 "does not have.")
             return
-        from pinlib.candidates import rank_candidates
+        from pinlib.studies.candidates import rank_candidates
 
         self.candidates_box.layout.display = None
         self.candidates_note.value = ""
@@ -461,7 +461,7 @@ class SwapExplorer(_Panel):
     def _ranking_html(r, bus: str | None = None, top: int = TOP) -> str:
         """The best ``top`` candidates, with the figures of one bus of the position (the
         bus charted; the first when it is not one of the ranking's)."""
-        from pinlib.candidates import FIGURES
+        from pinlib.studies.candidates import FIGURES
 
         rows_of = {b["bus"]: b for b in r.buses}
         shown = rows_of.get(bus) or (r.buses[0] if r.buses else None)

@@ -10,7 +10,6 @@ from pathlib import Path
 import ipywidgets as W
 import tomlkit
 
-from pinlib import charts, plotdata
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.quantity import format_si
@@ -19,7 +18,8 @@ from pinlib.engines.dispatch import check_design
 from pinlib.library import load_library
 from pinlib.library.loader import Library
 from pinlib.model.design import MODES, design_from_text
-from pinlib.widgets.common import (
+from pinlib.present import charts, plotdata
+from pinlib.present.widgets.common import (
     ChartView,
     QuantityField,
     StaticView,
@@ -38,7 +38,7 @@ from pinlib.widgets.common import (
     toggle_layout,
     with_button,
 )
-from pinlib.widgets.designdoc import (
+from pinlib.present.widgets.designdoc import (
     _design_doc,
     _devices_array,
     _inline,
@@ -47,7 +47,7 @@ from pinlib.widgets.designdoc import (
     _team_folders,
     _Trace,
 )
-from pinlib.widgets.markup import (
+from pinlib.present.widgets.markup import (
     BLOCK,
     block,
     caution_html,
@@ -129,7 +129,7 @@ class BusBuilder(_Panel):
     ``capacitance_per_length``, ``delay_per_length``, ``extra_capacitance``, ``pullup``
     (``"auto"`` or an E24 value), ``pullup_tolerance``, ``rise_measured``, ``c_probe``,
     ``levels``, ``title``.  In the browser the quantities are typed with their units
-    (:class:`~pinlib.widgets.common.QuantityField`); a refused text leaves everything as it
+    (:class:`~pinlib.present.widgets.common.QuantityField`); a refused text leaves everything as it
     was and says why under the field.  A controller the filters no longer allow stays the
     controller, and ``controller_note`` says why it does not fit.
 

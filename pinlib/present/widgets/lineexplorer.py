@@ -9,14 +9,14 @@ import ipywidgets as W
 import numpy as np
 import tomlkit
 
-from pinlib import charts, plotdata
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.engines.dispatch import design_result
 from pinlib.engines.pushpull import evaluate_gpio, gpio_analyses
 from pinlib.library import load_library
 from pinlib.library.loader import Library
-from pinlib.widgets.common import (
+from pinlib.present import charts, plotdata
+from pinlib.present.widgets.common import (
     ChartView,
     QuantityField,
     StaticView,
@@ -35,14 +35,14 @@ from pinlib.widgets.common import (
     toggle_layout,
     with_button,
 )
-from pinlib.widgets.designdoc import (
+from pinlib.present.widgets.designdoc import (
     _design_doc,
     _devices_array,
     _inline,
     _load,
     _Trace,
 )
-from pinlib.widgets.markup import (
+from pinlib.present.widgets.markup import (
     caution_html,
     checks_table,
     error_html,

@@ -8,7 +8,7 @@ widget of its own: shared, hiding one control would hide every control using it)
 workbench is a header, then a row that wraps: a control column of fixed width
 (:data:`COLUMN_WIDTH`, never shrinking) and an output column that takes the remaining
 width, or goes below the controls when less than its basis is left.  Charts scale down to
-their column; tables are capped to it (:mod:`pinlib.widgets.markup`).  Wide tables go in
+their column; tables are capped to it (:mod:`pinlib.present.widgets.markup`).  Wide tables go in
 a full-width row under both columns.
 
 Quantities
@@ -31,12 +31,12 @@ from pathlib import Path
 
 import ipywidgets as W
 
-from pinlib import charts
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.eseries import values_in_range
 from pinlib.core.quantity import format_si, parse
-from pinlib.widgets.markup import (
+from pinlib.present import charts
+from pinlib.present.widgets.markup import (
     caution_html,
     e,
     error_html,
@@ -382,7 +382,7 @@ class ChartView:
     widget : ipywidgets.HTML
         What to display.
     chart : altair chart, dict or None
-        The chart last drawn (a dict when it was built by :func:`pinlib.charts.spec`).
+        The chart last drawn (a dict when it was built by :func:`pinlib.present.charts.spec`).
     spec : dict or None
         Its Vega-Lite specification.
     svg : str or None
@@ -408,7 +408,7 @@ class ChartView:
         """
         # altair checks every object it builds against the Vega-Lite schema ("debug
         # mode"); for a waveform of a few thousand points that is most of a redraw.
-        # pinlib.charts' own tests validate the specifications it builds.
+        # pinlib.present.charts' own tests validate the specifications it builds.
         from altair.utils import schemapi
 
         try:

@@ -7,8 +7,8 @@ its charts; the Monte Carlo histograms when a run is given; every part used with
 provenance of each value (basis, source, the part file that set it: this part or one
 it inherits from); and the change list against the design's saved snapshot.
 
-Charts (:mod:`pinlib.charts`, rendered to SVG by vl-convert) draw the arrays of
-:mod:`pinlib.plotdata`, which the engines compute:
+Charts (:mod:`pinlib.present.charts`, rendered to SVG by vl-convert) draw the arrays of
+:mod:`pinlib.present.plotdata`, which the engines compute:
 
 * each open-drain line: the pull-up window (Rp against Cb, log axes, the allowed band
   shaded, the chosen point marked);
@@ -25,7 +25,7 @@ each chart is an SVG file in a folder beside the ``.md`` linked as an image
 editors show — or, with no ``chart_dir``, embedded as a ``data:image/svg+xml`` URI so
 that the text stands alone.
 
-A Monte Carlo run (:func:`pinlib.whatif.monte_carlo`) adds a section: the run's size,
+A Monte Carlo run (:func:`pinlib.studies.whatif.monte_carlo`) adds a section: the run's size,
 draws, seed and yields; a table of every sampled check whose margin varies over the
 boards (or that fails on some) with its pass fraction, confidence interval, lowest
 margin, the parameters it is most sensitive to and its source; and histograms of the
@@ -51,7 +51,7 @@ from pinlib.core import messages as M
 from pinlib.core.errors import PinlibError
 from pinlib.core.quantity import format_si
 from pinlib.model.result import CAUTION, BusResult, Check, DesignResult, Group
-from pinlib.report import format_value
+from pinlib.present.report import format_value
 
 __all__ = [
     "MC_CHARTS",
@@ -209,7 +209,7 @@ class _Keys:
 def _draw(key, kind, title, caption, make) -> ReviewChart:
     """Build a chart; an input the chart refuses becomes a chart with an error, so one
     undrawable figure does not lose the whole report."""
-    from pinlib.charts import to_svg
+    from pinlib.present.charts import to_svg
 
     try:
         chart = make()
@@ -245,8 +245,8 @@ def _f(x, unit):
 
 
 def _pullup_charts(bus, design, result: BusResult, keys, charts):
-    from pinlib import charts as ch
-    from pinlib import plotdata
+    from pinlib.present import charts as ch
+    from pinlib.present import plotdata
 
     for seg in bus.segments:
         place = ("segment", bus.id, seg.id) if result.segments else ("bus", bus.id)
@@ -278,8 +278,8 @@ def _pullup_charts(bus, design, result: BusResult, keys, charts):
 def _push_pull_charts(bus, design, result: BusResult, keys, charts):
     import numpy as np
 
-    from pinlib import charts as ch
-    from pinlib import plotdata
+    from pinlib.present import charts as ch
+    from pinlib.present import plotdata
 
     sa = None
     if bus.protocol == "spi":
@@ -371,7 +371,7 @@ def _mc_entries(mc) -> list:
 
 
 def _mc_rows(mc) -> list[dict]:
-    """One row per sampled check, from a :class:`pinlib.whatif.McResult` (each check's
+    """One row per sampled check, from a :class:`pinlib.studies.whatif.McResult` (each check's
     per-board relative margins: a board passes when its margin is not negative) or from
     entries of the plain protocol in the module notes (samples of the checked value and
     its limit)."""
@@ -380,7 +380,7 @@ def _mc_rows(mc) -> list[dict]:
     rows = []
     for entry in _mc_entries(mc):
         passes = _get(entry, "passes")
-        if passes is not None and hasattr(passes, "fraction"):  # pinlib.whatif.McCheck
+        if passes is not None and hasattr(passes, "fraction"):  # pinlib.studies.whatif.McCheck
             margins = _get(entry, "margins")
             samples = None if margins is None else np.asarray(margins, dtype=float)
             lowest = entry.margin_quantiles((0.0,))[0] if hasattr(entry, "margin_quantiles") \
@@ -421,7 +421,7 @@ MC_CHARTS = 12
 
 
 def _mc_charts(mc, keys) -> tuple[list, list]:
-    from pinlib import charts as ch
+    from pinlib.present import charts as ch
 
     rows = _mc_rows(mc)
     shown = [r for r in rows if r["varies"] or r["failures"]]
@@ -509,16 +509,16 @@ def build_review(design, result: DesignResult, *, changes=None, mc=None) -> Revi
         Its result (:func:`pinlib.engines.dispatch.check_design`).
     changes : ChangeList, optional
         The change list against the saved snapshot
-        (:func:`pinlib.compare.compare_with_snapshot`); None: no snapshot.
+        (:func:`pinlib.studies.compare.compare_with_snapshot`); None: no snapshot.
     mc : McResult, optional
-        A Monte Carlo run (:func:`pinlib.whatif.monte_carlo`), or samples in the plain
+        A Monte Carlo run (:func:`pinlib.studies.whatif.monte_carlo`), or samples in the plain
         protocol of the module notes.
 
     Returns
     -------
     Review
     """
-    from pinlib.compare import snapshot
+    from pinlib.studies.compare import snapshot
 
     keys = _Keys()
     charts: dict = {}
@@ -911,7 +911,7 @@ class _Html:
                    "<thead><tr>" + "".join(f'<th scope="col">{x}</th>' for x in (
                        "Value", "Resolved", "Typical", "Basis", "Source", "Set in"))
                    + "</tr></thead><tbody>")
-            from pinlib.compare import value_label
+            from pinlib.studies.compare import value_label
 
             for key, entry in (p.get("values") or {}).items():
                 self.w(f"<tr><td><code>{_e(value_label(key))}</code></td>"
@@ -933,7 +933,7 @@ class _Html:
             self.w(f'<p class="none">{text}</p>',
                    "</section>")
             return
-        from pinlib.compare import format_change, format_figure
+        from pinlib.studies.compare import format_change, format_figure
 
         pct = f"{cl.threshold * 100:g} %"
         when = f" saved {cl.old_created}" if cl.old_created else ""
@@ -1110,7 +1110,7 @@ class _Markdown:
             self.chart(chart)
 
     def parts(self):
-        from pinlib.compare import value_label
+        from pinlib.studies.compare import value_label
 
         self.w("## Parts and the provenance of their values", "",
                "Every value as the library resolved it: its basis, its source, and the part "

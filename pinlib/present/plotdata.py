@@ -8,7 +8,7 @@ arrays.  Curves that the engine does not store (a sweep over Cb or over load) co
 the same physics functions the engine uses, with the same inputs
 (:func:`pinlib.physics.rc.rp_max`, :func:`pinlib.physics.driver.edge_vs_load`), so the
 chosen or operating point of every chart is the figure the result reports.
-:mod:`pinlib.charts` then draws these arrays; it computes nothing.
+:mod:`pinlib.present.charts` then draws these arrays; it computes nothing.
 
 Functions
 ---------
@@ -641,7 +641,7 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
             raise InputError(M.BUDGET_DOES_NOT_ADD_UP,
                              field=f"{term.id} {term.subject}",
                              value=f"{available - used!r} against {margin!r}",
-                             expected="pinlib.plotdata.BUDGET_COMPONENTS to match "
+                             expected="pinlib.present.plotdata.BUDGET_COMPONENTS to match "
                                       "pinlib.engines.spi.budget_terms")
         avail[path] = available
         margins[path] = margin

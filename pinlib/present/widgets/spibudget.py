@@ -8,16 +8,16 @@ from dataclasses import dataclass
 
 import ipywidgets as W
 
-from pinlib import charts, plotdata
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import tomllib
-from pinlib.labels import check_label
 from pinlib.model.design import Design, design_from_text, load_design
 from pinlib.model.result import BusResult
-from pinlib.report import format_value
-from pinlib.widgets.common import (
+from pinlib.present import charts, plotdata
+from pinlib.present.labels import check_label
+from pinlib.present.report import format_value
+from pinlib.present.widgets.common import (
     ChartView,
     QuantityField,
     StaticView,
@@ -30,7 +30,7 @@ from pinlib.widgets.common import (
     style,
     toggle_layout,
 )
-from pinlib.widgets.markup import (
+from pinlib.present.widgets.markup import (
     CELL,
     NUM,
     TABLE,

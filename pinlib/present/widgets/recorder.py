@@ -12,7 +12,7 @@ from pinlib.core import messages as M
 from pinlib.core.errors import InputError, LibraryError, PinlibError
 from pinlib.library import load_library
 from pinlib.library.loader import Library
-from pinlib.widgets.common import (
+from pinlib.present.widgets.common import (
     StaticView,
     _Panel,
     block_layout,
@@ -21,7 +21,7 @@ from pinlib.widgets.common import (
     set_options,
     style,
 )
-from pinlib.widgets.markup import block, caution_html, e, error_html, inline_error, note
+from pinlib.present.widgets.markup import block, caution_html, e, error_html, inline_error, note
 
 #: Width of a form field in the recorder (its error goes beside it). [px]
 FORM_WIDTH = 400
