@@ -11,7 +11,7 @@ from pathlib import Path
 import pytest
 
 from pinlib.cli import main
-from pinlib.commands import demo
+from pinlib.cli.commands import demo
 
 ROOT = Path(__file__).resolve().parents[1]
 WORKBOOKS = ROOT / "workbooks"
@@ -83,7 +83,7 @@ def test_a_file_where_the_folder_should_be_is_a_clear_error(tmp_path, capsys):
 
 
 def test_missing_demo_files_say_so(tmp_path, capsys, monkeypatch):
-    monkeypatch.setattr(demo, "__file__", str(tmp_path / "pinlib" / "commands" / "demo.py"))
+    monkeypatch.setattr(demo, "__file__", str(tmp_path / "pinlib" / "cli" / "commands" / "demo.py"))
     code, _, err = run(capsys, "demo", str(tmp_path / "out"))
     assert code == 2
     assert "the demo files are not part of this installation of pinlib" in err

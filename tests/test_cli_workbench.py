@@ -18,7 +18,7 @@ from pathlib import Path
 import pytest
 
 from pinlib.cli import main
-from pinlib.commands import workbench
+from pinlib.cli.commands import workbench
 
 ROOT = Path(__file__).resolve().parents[1]
 

@@ -25,7 +25,7 @@ from pathlib import Path
 import pytest
 
 from pinlib.cli import COMMANDS
-from pinlib.commands import demo
+from pinlib.cli.commands import demo
 from pinlib.core.tomlfile import tomllib
 
 pytestmark = pytest.mark.install

@@ -1761,7 +1761,7 @@ def _(env):
 
 @case("MONTE_CARLO_UNAVAILABLE")
 def _(env):
-    from pinlib.commands import report
+    from pinlib.cli.commands import report
     env.monkeypatch.setattr(report, "MONTE_CARLO_MODULES", ())
     path = env.write("design.toml", HEAD + I2C_BUS)
     return env.cli("report", str(path), "--html", str(env.tmp / "r.html"), "--monte-carlo", "4")
@@ -1808,17 +1808,18 @@ def _demo_twice(env):
 
 
 def _demo_count():
-    from pinlib.commands import demo
+    from pinlib.cli.commands import demo
 
     return len(demo.demo_files(demo.source_folder()))
 
 
 @case("DEMO_FILES_MISSING")
 def _(env):
-    from pinlib.commands import demo
+    from pinlib.cli.commands import demo
 
     # a package with no workbooks beside it or above it
-    env.monkeypatch.setattr(demo, "__file__", str(env.tmp / "pinlib" / "commands" / "demo.py"))
+    env.monkeypatch.setattr(demo, "__file__",
+                            str(env.tmp / "pinlib" / "cli" / "commands" / "demo.py"))
     return env.cli("demo", str(env.tmp / "demo"))
 
 
@@ -1884,7 +1885,7 @@ def _(env):
 def _server_exits(env):
     import sys
 
-    from pinlib.commands import workbench
+    from pinlib.cli.commands import workbench
 
     # a server that stops at once (status 3), as Voila does on a bad option
     env.monkeypatch.setattr(workbench, "voila_command",
@@ -1906,7 +1907,7 @@ def _(env):
 def _(env):
     import sys
 
-    from pinlib.commands import workbench
+    from pinlib.cli.commands import workbench
 
     # a server that never answers (it is stopped when the command gives up)
     env.monkeypatch.setattr(workbench, "START_TIMEOUT", 0.5)

@@ -599,7 +599,7 @@ def test_review_of_a_monte_carlo_run(demo):
 
 
 def test_command_without_a_monte_carlo_engine(tmp_path, capsys, monkeypatch):
-    from pinlib.commands import report as cmd
+    from pinlib.cli.commands import report as cmd
 
     monkeypatch.setattr(cmd, "MONTE_CARLO_MODULES", ("pinlib.no_such_engine",))
     out = tmp_path / "x.html"

@@ -138,7 +138,7 @@ UNKNOWN_SPI_SIGNAL = "unknown SPI signal"
 SPI_NEEDS_CLOCK = "an SPI bus needs its clock"
 SPI_NEEDS_SCLK = "an SPI bus needs its SCLK routing"
 
-# ---------------------------------------------------------------- pinlib/commands/
+# ---------------------------------------------------------------- pinlib/cli/commands/
 NO_FOLDER_FOR_NEW_PART = "no folder to write the new part into"
 PART_DOES_NOT_LOAD = "the part does not load"
 LIBRARY_HAS_PROBLEMS = ("{n} problem(s) in the library (run 'pinlib parts check'); parts "
@@ -357,8 +357,8 @@ MODULES = (
     "pinlib.library.fields",
     "pinlib.library.record",
     "pinlib.model.design",
-    "pinlib.commands.parts",
-    "pinlib.commands.swap",
+    "pinlib.cli.commands.parts",
+    "pinlib.cli.commands.swap",
     "pinlib.standards.i2c",
     "pinlib.standards.jedec",
     "pinlib.standards.smbus",
@@ -386,11 +386,11 @@ MODULES = (
     "pinlib.present.widgets.recorder",
     "pinlib.present.widgets.swaps",
     "pinlib.present.review",
-    "pinlib.commands.check",
-    "pinlib.commands.report",
-    "pinlib.commands.candidates",
-    "pinlib.commands.demo",
-    "pinlib.commands.workbench",
+    "pinlib.cli.commands.check",
+    "pinlib.cli.commands.report",
+    "pinlib.cli.commands.candidates",
+    "pinlib.cli.commands.demo",
+    "pinlib.cli.commands.workbench",
     "pinlib.core.extras",
 )
 

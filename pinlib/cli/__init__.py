@@ -1,6 +1,6 @@
 """The ``pinlib`` command: parses arguments, calls the layers below, prints.
 
-Each subcommand lives in ``pinlib/commands/<name>.py`` with two functions:
+Each subcommand lives in ``pinlib/cli/commands/<name>.py`` with two functions:
 ``add_parser(subparsers)`` and ``run(args) -> int`` (the exit code).  A
 :class:`~pinlib.core.errors.PinlibError` anywhere below becomes one clear message on
 standard error and exit code 2 — never a traceback.
@@ -17,7 +17,7 @@ from pinlib.core.errors import PinlibError
 
 __all__ = ["main", "COMMANDS"]
 
-#: Subcommand modules under pinlib.commands, in the order --help lists them.
+#: Subcommand modules under pinlib.cli.commands, in the order --help lists them.
 COMMANDS = ["check", "report", "swap", "candidates", "parts", "demo", "workbench"]
 
 EPILOG = """\
@@ -42,9 +42,9 @@ def build_parser() -> argparse.ArgumentParser:
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for name in COMMANDS:
         try:
-            module = importlib.import_module(f"pinlib.commands.{name}")
+            module = importlib.import_module(f"pinlib.cli.commands.{name}")
         except ModuleNotFoundError as exc:
-            if exc.name != f"pinlib.commands.{name}":
+            if exc.name != f"pinlib.cli.commands.{name}":
                 raise
             continue  # a command not built yet
         module.add_parser(sub)

@@ -32,7 +32,7 @@ exit status: 0 pass or warn, 1 a check fails, 2 the design or library is not val
 
 
 def threshold_type(text):
-    from pinlib.commands.swap import threshold_type as parse
+    from pinlib.cli.commands.swap import threshold_type as parse
 
     return parse(text)
 

@@ -60,7 +60,7 @@ def add_parser(sub) -> None:
 
 def source_folder() -> Path:
     """The folder the demo is copied from: the installed package's, else the checkout's."""
-    package = Path(__file__).resolve().parents[1]
+    package = Path(__file__).resolve().parents[2]
     for folder in (package / "workbooks", package.parent / "workbooks"):
         if (folder / DEMO_DESIGN).is_file():
             return folder

@@ -49,7 +49,7 @@ def _positive_int(text: str) -> int:
 
 
 def threshold_type(text):
-    from pinlib.commands.swap import threshold_type as parse
+    from pinlib.cli.commands.swap import threshold_type as parse
 
     return parse(text)
 

@@ -1,1 +1,0 @@
-"""Subcommands of the ``pinlib`` command, one module each (see pinlib/cli.py)."""
