@@ -24,13 +24,21 @@ the bus (``Device.capacitance_factor``); the stored part is not changed.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
 
 from pinlib.engines import pushpull as pp
 from pinlib.engines.odbatch import BatchCheck
+from pinlib.engines.ppvariant import (
+    check_names,
+    chosen_resistors,
+    flat_checks,
+    number_or_nan,
+    parameter_specs,
+    vary_bus,
+)
 from pinlib.model.design import Bus, Design
 from pinlib.model.result import STATUS_CODES
 
@@ -49,173 +57,6 @@ __all__ = [
 #: The protocols this module evaluates.
 PROTOCOLS = ("spi", "gpio")
 
-
-
-def _rail_key(v: float, tol: float) -> tuple:
-    return ("rail", round(float(v), 9), round(float(tol), 9))
-
-
-def parameter_specs(bus: Bus) -> list[tuple]:
-    """What varies on a push-pull bus: ``(name, kind, nominal, tolerance, unit, key)``.
-
-    Parameters
-    ----------
-    bus : Bus
-        An ``spi`` or ``gpio`` bus. [1]
-
-    Returns
-    -------
-    list of tuple
-        One per toleranced quantity, each key once (a rail shared with other buses
-        carries the same key as in :mod:`pinlib.studies.whatif`). [1]
-    """
-    from pinlib.core.quantity import format_si
-
-    out, seen = [], set()
-
-    def add(*spec):
-        if spec[-1] not in seen:
-            seen.add(spec[-1])
-            out.append(spec)
-
-    vtol = bus.supply_tolerance or 0.0
-    if vtol > 0 and bus.supply is not None:
-        rails = [float(bus.supply)] + [float(d.supply) for d in bus.devices
-                                       if d.supply is not None]
-        for v in rails:
-            add(f"rail {format_si(v, 'V')}", "supply", v, vtol, "V", _rail_key(v, vtol))
-    for d in bus.devices:
-        if d.capacitance_tolerance:
-            add(f"{d.ref} pin capacitance on {bus.id}", "capacitance", 1.0,
-                d.capacitance_tolerance, "", ("pins", bus.id, d.ref))
-    ltol = bus.length_tolerance or 0.0
-    ctol = bus.capacitance_tolerance or 0.0
-    for sig, line in bus.lines.items():
-        if ltol > 0 and line.sections and line.length > 0:
-            add(f"{bus.id} {sig} length", "length", float(line.length), ltol, "m",
-                ("line-length", bus.id, sig))
-        if ctol > 0 and line.extra_capacitance > 0:
-            add(f"{bus.id} {sig} extra capacitance", "capacitance", 1.0, ctol, "",
-                ("line-extra", bus.id, sig))
-    return out
-
-
-def chosen_resistors(nominal) -> dict[str, float]:
-    """The series resistor "auto" chose on each line of a push-pull result, by signal.
-
-    Parameters
-    ----------
-    nominal : BusResult
-        The engine's result of the bus as designed. [1]
-
-    Returns
-    -------
-    dict of str to float
-        Only the lines whose setting was "auto" (their ``series-termination`` check
-        holds the choice; 0 is no resistor). [Ω]
-    """
-    out = {}
-    for ln in nominal.lines:
-        c = ln.check("series-termination")
-        if c is not None and c.value is not None:
-            out[ln.signal] = float(c.value)
-    return out
-
-
-def vary_bus(bus: Bus, factor, resistors: dict[str, float] | None = None) -> Bus:
-    """The bus with its toleranced values scaled.
-
-    Parameters
-    ----------
-    bus : Bus
-        An ``spi`` or ``gpio`` bus. [1]
-    factor : callable
-        ``factor(key)``: the factor ``1 + tolerance·u`` of a parameter key, or None
-        when the key is not varied. [1]
-    resistors : dict, optional
-        A fixed series resistor for lines set to "auto" (:func:`chosen_resistors`). [Ω]
-
-    Returns
-    -------
-    Bus
-        A copy with its supplies, line lengths, extra capacitances and device pin
-        capacitances multiplied. [1]
-    """
-    resistors = resistors or {}
-    vtol = bus.supply_tolerance or 0.0
-
-    def rail(v):
-        if v is None:
-            return None
-        f = factor(_rail_key(v, vtol))
-        return v if f is None else float(v) * f
-
-    def device(d):
-        if d.supply is not None:
-            d = replace(d, supply=rail(d.supply))
-        f = factor(("pins", bus.id, d.ref))
-        return d if f is None else replace(d, capacitance_factor=float(f))
-
-    devices = tuple(device(d) for d in bus.devices)
-    lines = {}
-    for sig, line in bus.lines.items():
-        fl = factor(("line-length", bus.id, sig))
-        fc = factor(("line-extra", bus.id, sig))
-        if fl is not None:
-            line = replace(line, sections=tuple(replace(s, length=s.length * fl)
-                                                for s in line.sections))
-        if fc is not None:
-            line = replace(line, extra_capacitance=line.extra_capacitance * fc)
-        if line.series_resistor == "auto" and sig in resistors:
-            rs = resistors[sig]
-            line = replace(line, series_resistor=rs if rs > 0 else "none")
-        lines[sig] = line
-    return replace(bus, supply=rail(bus.supply), devices=devices, lines=lines)
-
-
-def flat_checks(res) -> list[tuple]:
-    """Every check of a push-pull result in order: (signal or None, Check)."""
-    out = [(ln.signal, c) for ln in res.lines for c in ln.checks]
-    out += [(None, c) for c in res.checks]
-    return out
-
-
-def check_names(bus: Bus, res) -> list[dict]:
-    """A unique name and the engine's check for each check of ``res``, in order.
-
-    Parameters
-    ----------
-    bus : Bus
-        The bus. [1]
-    res : BusResult
-        The engine's result of it. [1]
-
-    Returns
-    -------
-    list of dict
-        ``name`` (``"<bus> [<signal>] <check id> [<subject>]"``), ``engine``,
-        ``signal``. [1]
-    """
-    out, used = [], {}
-    for sig, c in flat_checks(res):
-        name = f"{bus.id} {sig} {c.id}" if sig else f"{bus.id} {c.id}"
-        if c.subject:
-            name += f" {c.subject}"
-        used[name] = used.get(name, 0) + 1
-        if used[name] > 1:
-            name += f" #{used[name]}"
-        out.append({"name": name, "engine": c, "signal": sig})
-    return out
-
-
-def number_or_nan(x) -> float:
-    """A check's value, limit or margin as a float; NaN for none or a yes/no value."""
-    if x is None or isinstance(x, bool):
-        return math.nan
-    try:
-        return float(x)
-    except (TypeError, ValueError):
-        return math.nan
 
 
 @dataclass

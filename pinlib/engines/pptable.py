@@ -1,7 +1,7 @@
 """Tables of the push-pull engine over a bus's tolerance box, for large batches of boards.
 
 A drawn board of an SPI or GPIO bus differs from the design in its rails, its line
-lengths and its extra line capacitance (:mod:`pinlib.engines.ppbatch`).  Each line's
+lengths and its extra line capacitance (:mod:`pinlib.engines.ppvariant`).  Each line's
 results (its checks, and the flights it gives the timing budget) depend only on that
 line's own length and capacitance factors, on the rails and on the pins' capacitance; the
 bus's timing checks are sums of flights from several lines
@@ -41,9 +41,9 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from pinlib.engines import ppbatch as ppb
+from pinlib.engines import ppvariant as ppv
 from pinlib.engines import pushpull as pp
-from pinlib.engines.ppbatch import number_or_nan as _num
+from pinlib.engines.ppvariant import number_or_nan as _num
 from pinlib.engines.pushline import Flight
 from pinlib.model.design import Bus, Design
 from pinlib.model.result import STATUS_CODES, min_margin, status_codes
@@ -80,7 +80,7 @@ class Axis:
 
 
 def axes_of(specs: list[tuple], span: float, floor: float) -> list[Axis]:
-    """The axes of a bus's table from :func:`pinlib.engines.ppbatch.parameter_specs`.
+    """The axes of a bus's table from :func:`pinlib.engines.ppvariant.parameter_specs`.
 
     Parameters
     ----------
@@ -117,7 +117,7 @@ class LineTable:
     axes : list of Axis
         The grid's axes. [1]
     names : list of dict
-        The checks of a varied board, as :func:`pinlib.engines.ppbatch.check_names`. [1]
+        The checks of a varied board, as :func:`pinlib.engines.ppvariant.check_names`. [1]
     evaluations : int
         Engine evaluations made (nodes and verification boards). [1]
     max_error : float
@@ -324,7 +324,7 @@ def _record(bus: Bus, res, sa) -> tuple[dict, list]:
     """Per line, the labelled numbers of one evaluation; and each check's record."""
     per_line: dict[str, list] = {}
     checks = []
-    for nm, (sig, c) in zip(ppb.check_names(bus, res), ppb.flat_checks(res), strict=True):
+    for nm, (sig, c) in zip(ppv.check_names(bus, res), ppv.flat_checks(res), strict=True):
         checks.append((nm["name"], sig, c))
         if sig is not None:
             per_line.setdefault(sig, []).extend(
@@ -361,7 +361,7 @@ def tabulate(bus: Bus, design: Design, axes: list[Axis],
     axes : list of Axis
         From :func:`axes_of`. [1]
     resistors : dict
-        Series resistors fixed for "auto" lines (``ppbatch.chosen_resistors``). [Ω]
+        Series resistors fixed for "auto" lines (``ppvariant.chosen_resistors``). [Ω]
     progress : bool, callable or None, optional
         A bar over the engine evaluations (see :func:`pinlib.core.progress.progress_bar`). [1]
     """
@@ -389,10 +389,10 @@ def _tabulate(bus, design, axes, resistors, grids, shape, bar) -> LineTable | st
         for ax, g, i in zip(axes, grids, index, strict=True):
             for key in ax.keys:
                 factor[key] = float(g[i])
-        res, sa = _evaluate(ppb.vary_bus(bus, factor.get, resistors), design)
+        res, sa = _evaluate(ppv.vary_bus(bus, factor.get, resistors), design)
         per_line, checks = _record(bus, res, sa)
         if order is None:  # the first node names the checks (a varied board has no
-            names = ppb.check_names(bus, res)  # "auto" left: no series-termination check)
+            names = ppv.check_names(bus, res)  # "auto" left: no series-termination check)
             order = [nm["name"] for nm in names]
         if [c[0] for c in checks] != order:
             return "the checks differ across the tolerance box"
@@ -490,11 +490,11 @@ def _verify(table: LineTable, bus: Bus, design: Design, resistors: dict,
     got = table.evaluate(draws, VERIFY)
     worst = 0.0
     for b in range(VERIFY):
-        res, _ = _evaluate(ppb.vary_bus(bus, {k: float(v[b]) for k, v in draws.items()}.get,
+        res, _ = _evaluate(ppv.vary_bus(bus, {k: float(v[b]) for k, v in draws.items()}.get,
                                         resistors), design)
         bar.update(1)
-        engine = [c for _, c in ppb.flat_checks(res)]
-        if [nm["name"] for nm in ppb.check_names(bus, res)] != [nm["name"] for nm in table.names]:
+        engine = [c for _, c in ppv.flat_checks(res)]
+        if [nm["name"] for nm in ppv.check_names(bus, res)] != [nm["name"] for nm in table.names]:
             return "a verification board has other checks"
         for j, c in enumerate(engine):
             if c.margin is None:
