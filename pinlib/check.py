@@ -10,7 +10,9 @@ from pinlib.engines.dispatch import (
     check_design,
     check_file,
     design_result,
+    engine,
     evaluate_bus,
 )
 
-__all__ = ["ENGINES", "check_design", "check_file", "design_result", "evaluate_bus"]
+__all__ = ["ENGINES", "check_design", "check_file", "design_result", "engine",
+           "evaluate_bus"]

@@ -1,33 +1,52 @@
 """A design file -> results: each bus goes to the engine of its protocol.
 
-Open-drain buses (``i2c``, ``smbus``) go to :mod:`pinlib.engines.opendrain`; push-pull
-buses (``spi``, ``gpio``) to :mod:`pinlib.engines.pushpull`.  Engines are imported when a
-bus needs them, so a design of I2C buses never loads the waveform solver.
+The protocol table (:mod:`pinlib.core.protocols`) names each protocol's engine: open-drain
+buses (``i2c``, ``smbus``) go to :mod:`pinlib.engines.opendrain`, push-pull buses
+(``spi``, ``gpio``) to :mod:`pinlib.engines.pushpull`.  Each engine is imported here, in
+plain code, when a bus first needs it, so a design of I2C buses never loads the waveform
+solver.
 """
 
 from __future__ import annotations
 
-import importlib
 import os
 
+from pinlib.core.protocols import PROTOCOLS
 from pinlib.model.design import Bus, Design, load_design
 from pinlib.model.result import BusResult, DesignResult
 
-__all__ = ["ENGINES", "check_design", "check_file", "design_result", "evaluate_bus"]
+__all__ = ["ENGINES", "check_design", "check_file", "design_result", "engine",
+           "evaluate_bus"]
 
 #: The engine module of each protocol; each has ``evaluate_bus(bus, design) -> BusResult``.
-ENGINES = {
-    "i2c": "pinlib.engines.opendrain",
-    "smbus": "pinlib.engines.opendrain",
-    "spi": "pinlib.engines.pushpull",
-    "gpio": "pinlib.engines.pushpull",
-}
+ENGINES = {name: p.engine for name, p in PROTOCOLS.items()}
+
+
+def _opendrain():
+    from pinlib.engines import opendrain
+
+    return opendrain
+
+
+def _pushpull():
+    from pinlib.engines import pushpull
+
+    return pushpull
+
+
+#: How each engine the protocol table names is imported.
+_IMPORT = {"pinlib.engines.opendrain": _opendrain, "pinlib.engines.pushpull": _pushpull}
+
+
+def engine(protocol: str):
+    """The engine module of ``protocol`` (imported on first use)."""
+    # design.py admits only the protocols of the table, and each names an engine above.
+    return _IMPORT[PROTOCOLS[protocol].engine]()
 
 
 def evaluate_bus(bus: Bus, design: Design) -> BusResult:
     """Evaluate one bus with the engine of its protocol."""
-    # design.py admits only the protocols listed in ENGINES.
-    return importlib.import_module(ENGINES[bus.protocol]).evaluate_bus(bus, design)
+    return engine(bus.protocol).evaluate_bus(bus, design)
 
 
 def check_design(design: Design) -> DesignResult:

@@ -29,6 +29,7 @@ from typing import Any
 
 import numpy as np
 
+from pinlib.core.protocols import PUSH_PULL_PROTOCOLS
 from pinlib.engines import pushpull as pp
 from pinlib.engines.odbatch import BatchCheck
 from pinlib.engines.ppvariant import (
@@ -55,7 +56,7 @@ __all__ = [
 ]
 
 #: The protocols this module evaluates.
-PROTOCOLS = ("spi", "gpio")
+PROTOCOLS = PUSH_PULL_PROTOCOLS
 
 
 

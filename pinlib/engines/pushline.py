@@ -65,6 +65,7 @@ import numpy as np
 from pinlib.core import eseries
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError
+from pinlib.core.protocols import protocol
 from pinlib.core.quantity import format_si
 from pinlib.library.schema import Pin
 from pinlib.model.design import Bus, Device, Line, Section
@@ -138,7 +139,7 @@ _RINGING_SOURCE = ("an input that re-crosses its threshold after the first cross
                    "switch twice (common practice, no source)")
 
 #: Pin function of each SPI signal.
-SIGNAL_FUNCTION = {"sclk": "spi-sclk", "copi": "spi-copi", "cipo": "spi-cipo", "cs": "spi-cs"}
+SIGNAL_FUNCTION = dict(protocol("spi").signals)
 
 # Time grid of the waveform solvers.
 _STEPS_PER_DELAY = 50      # steps per shortest section delay (distributed model)

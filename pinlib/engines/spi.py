@@ -735,18 +735,18 @@ def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
     sclk = lines.get("sclk")
     periph_t = []
     ctl_sclk = None if sclk is None else sclk.cases[controller.ref]
-    ctl_cipo = endpoint(controller, "spi-cipo", bus)
+    ctl_cipo = endpoint(controller, SIGNAL_FUNCTION["cipo"], bus)
     for p in peripherals:
         if ctl_sclk is None:
             continue
-        ep = endpoint(p, "spi-sclk", bus)
+        ep = endpoint(p, SIGNAL_FUNCTION["sclk"], bus)
         if ep is None:
             continue
         sclk_f = {e: ctl_sclk.flight(ep, e) for e in ("rise", "fall")}
         copi = cs = cipo = None
-        if "copi" in lines and (e := endpoint(p, "spi-copi", bus)) is not None:
+        if "copi" in lines and (e := endpoint(p, SIGNAL_FUNCTION["copi"], bus)) is not None:
             copi = lines["copi"].cases[controller.ref].flight_both(e)
-        if "cs" in lines and (e := endpoint(p, "spi-cs", bus)) is not None:
+        if "cs" in lines and (e := endpoint(p, SIGNAL_FUNCTION["cs"], bus)) is not None:
             cs = lines["cs"].cases[controller.ref].flight(e, "fall")
         if "cipo" in lines and p.ref in lines["cipo"].cases and ctl_cipo is not None:
             cipo = lines["cipo"].cases[p.ref].flight_both(ctl_cipo)

@@ -37,6 +37,7 @@ from typing import Annotated, Literal
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, field_validator, model_validator
 
 from pinlib.core import messages as M
+from pinlib.core.protocols import PIN_FUNCTIONS
 from pinlib.library.values import Sourced, sourced_parser, threshold_parser
 
 __all__ = [
@@ -62,7 +63,7 @@ CATEGORIES = (
     "buffer", "translator", "logic", "connector", "cable", "module", "isolator",
     "power", "network", "driver",
 )
-FUNCTIONS = ("i2c-sda", "i2c-scl", "spi-sclk", "spi-copi", "spi-cipo", "spi-cs", "gpio")
+FUNCTIONS = PIN_FUNCTIONS
 DRIVES = ("open-drain", "push-pull", "input")
 
 

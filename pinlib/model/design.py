@@ -22,6 +22,7 @@ from typing import Annotated, Literal
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, ValidationError
 
 from pinlib.core import messages as M
+from pinlib.core import protocols
 from pinlib.core.errors import DesignError, PinlibError
 from pinlib.core.quantity import format_si, parse
 from pinlib.core.tomlfile import dotted as dotted_path
@@ -46,12 +47,11 @@ __all__ = [
 ]
 
 FORMAT = "pinlib.design/1"
-PROTOCOLS = ("i2c", "smbus", "spi", "gpio")
+PROTOCOLS = protocols.NAMES
 MODES = {"i2c": ("standard", "fast", "fast-plus"), "smbus": ("100k", "400k", "1m")}
-SPI_SIGNALS = ("sclk", "copi", "cipo", "cs")
+SPI_SIGNALS = protocols.protocol("spi").signal_names
 # The pin function each signal of a protocol uses.
-SIGNAL_FUNCTION = {"sda": "i2c-sda", "scl": "i2c-scl", "sclk": "spi-sclk", "copi": "spi-copi",
-                   "cipo": "spi-cipo", "cs": "spi-cs"}
+SIGNAL_FUNCTION = protocols.SIGNAL_FUNCTION
 
 
 def _unit_validator(unit, lo=None, hi=None):
@@ -511,7 +511,7 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
             # Every engine divides by the clock (its period, its budget).
             raise err(M.CLOCK_NOT_POSITIVE, bloc + ("clock",), value=format_si(rb.clock, "Hz"),
                       expected='a clock such as "400 kHz"')
-        if rb.protocol in ("i2c", "smbus"):
+        if protocols.is_open_drain(rb.protocol):
             bus = _open_drain_bus(rb, bloc, mode, device, sections, cables, err)
         else:
             bus = _push_pull_bus(rb, bloc, device, sections, err)
@@ -592,7 +592,7 @@ def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bu
                           expected='side = "a" or "b"')
             if not d.is_bridge and side is not None:
                 raise err(M.SIDE_ONLY_FOR_BRIDGE, d.loc + ("side",), value=side)
-            for fn in ("i2c-sda", "i2c-scl"):
+            for fn in protocols.protocol(rb.protocol).functions:
                 if d.part.pin_for(fn, side) is None:
                     raise err(M.PART_LACKS_PIN_ON_SIDE.format(function=fn, side=side) if side
                               else M.PART_LACKS_PIN.format(function=fn),
@@ -638,8 +638,9 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err) -> Bus:
             raise err(M.SPI_NEEDS_CLOCK, bloc + ("clock",),
                       expected="clock = \"25 MHz\"")
         for d in devices:
-            needed = ("spi-sclk", "spi-copi", "spi-cs") if d.is_controller else ("spi-sclk",)
-            for fn in needed:
+            # a controller drives the clock, data out and select; a peripheral needs the clock
+            driven = ("sclk", "copi", "cs") if d.is_controller else ("sclk",)
+            for fn in (SIGNAL_FUNCTION[sig] for sig in driven):
                 if d.part.pin_for(fn, d.side) is None and not d.is_bridge:
                     raise err(M.PART_LACKS_PIN.format(function=fn), d.loc + ("part",),
                               value=d.part_id)

@@ -35,6 +35,7 @@ import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS, PUSH_PULL_PROTOCOLS
 from pinlib.core.quantity import format_si
 from pinlib.model.design import Bus, Design
 from pinlib.model.result import check_min
@@ -271,7 +272,7 @@ def line_analyses(bus: Bus, design: Design, analysis=None) -> dict:
         By signal: :class:`pinlib.engines.pushline.LineAnalysis` with the drive cases
         (waveforms) and the models of every driver.
     """
-    _require_protocol(bus, ("spi", "gpio"), "a push-pull line")
+    _require_protocol(bus, PUSH_PULL_PROTOCOLS, "a push-pull line")
     if analysis is not None:
         return dict(getattr(analysis, "lines", analysis))
     if bus.protocol == "spi":
@@ -338,7 +339,7 @@ def pullup_window_data(bus: Bus, design: Design, segment_id: str | None = None,
     """
     from pinlib.engines.opendrain import SIGNALS, collect
 
-    _require_protocol(bus, ("i2c", "smbus"), "a pull-up window")
+    _require_protocol(bus, OPEN_DRAIN_PROTOCOLS, "a pull-up window")
     if signal not in SIGNALS:
         raise InputError(M.UNKNOWN_OPEN_DRAIN_LINE, field="signal", value=signal,
                          expected=" or ".join(SIGNALS))

@@ -49,6 +49,7 @@ from dataclasses import dataclass, field
 from pinlib import __version__
 from pinlib.core import messages as M
 from pinlib.core.errors import PinlibError
+from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS, PUSH_PULL_PROTOCOLS
 from pinlib.core.quantity import format_si
 from pinlib.model.result import CAUTION, BusResult, Check, DesignResult, Group
 from pinlib.present.report import format_value
@@ -527,9 +528,9 @@ def build_review(design, result: DesignResult, *, changes=None, mc=None) -> Revi
         bus = by_id.get(br.id)
         if bus is None or not (br.checks or br.segments or br.lines or br.figures):
             continue  # not evaluated (no engine): nothing to draw
-        if bus.protocol in ("i2c", "smbus"):
+        if bus.protocol in OPEN_DRAIN_PROTOCOLS:
             _pullup_charts(bus, design, br, keys, charts)
-        elif bus.protocol in ("spi", "gpio"):
+        elif bus.protocol in PUSH_PULL_PROTOCOLS:
             _push_pull_charts(bus, design, br, keys, charts)
     mc_charts, mc_entries = _mc_charts(mc, keys) if mc is not None else ([], [])
     parts = snapshot(design, result).get("parts", {})

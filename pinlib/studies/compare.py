@@ -33,6 +33,7 @@ from pydantic import BaseModel
 
 from pinlib import __version__
 from pinlib.core import messages as M
+from pinlib.core import protocols
 from pinlib.core.errors import InputError
 from pinlib.core.quantity import Threshold, format_si, format_threshold, parse_ratio
 from pinlib.core.tomlfile import atomic_write
@@ -76,12 +77,7 @@ CHANGES_FORMAT = "pinlib.changes/1"
 DEFAULT_THRESHOLD = 0.05
 
 #: Pin functions each protocol puts on a bus.
-PROTOCOL_FUNCTIONS = {
-    "i2c": ("i2c-sda", "i2c-scl"),
-    "smbus": ("i2c-sda", "i2c-scl"),
-    "spi": ("spi-sclk", "spi-copi", "spi-cipo", "spi-cs"),
-    "gpio": ("gpio",),
-}
+PROTOCOL_FUNCTIONS = {name: p.functions for name, p in protocols.PROTOCOLS.items()}
 
 _ARROW = "→"
 
@@ -876,12 +872,12 @@ def compare(old_snapshot: dict, new_snapshot: dict, *, threshold: float = DEFAUL
 def _allowed_drives(protocol: str, function: str, role: str) -> tuple[set[str], str] | None:
     """The drives a position allows for a pin function, and why; None: no rule."""
     controller = role == "controller"
-    if protocol in ("i2c", "smbus"):
-        if function == "i2c-sda":
+    if protocols.is_open_drain(protocol):
+        if function == protocols.protocol(protocol).function("sda"):
             return ({"open-drain"},
                     "every I2C/SMBus device drives SDA (acknowledge, read data) and the line is "
                     "wired-AND, so SDA must be open-drain")
-        if function == "i2c-scl":
+        if function == protocols.protocol(protocol).function("scl"):
             if controller:
                 return ({"open-drain", "push-pull"}, "a controller drives SCL")
             return ({"input", "open-drain"},
@@ -889,12 +885,12 @@ def _allowed_drives(protocol: str, function: str, role: str) -> tuple[set[str], 
                     "SCL would fight the controller")
     if protocol == "spi":
         if controller:
-            if function == "spi-cipo":
+            if function == protocols.SIGNAL_FUNCTION["cipo"]:
                 return ({"input"}, "a controller reads CIPO; an output there fights the "
                         "peripheral")
             return ({"push-pull"}, f"a controller drives {function.removeprefix('spi-').upper()}"
                     " with a push-pull (or tri-state) output")
-        if function == "spi-cipo":
+        if function == protocols.SIGNAL_FUNCTION["cipo"]:
             return ({"push-pull"}, "a peripheral drives CIPO with a push-pull (tri-state) "
                     "output; the bus has no pull-up for an open-drain one")
         return ({"input"}, f"a peripheral reads {function.removeprefix('spi-').upper()}; an "
@@ -908,7 +904,7 @@ def _scl_drivers_elsewhere(device, bus) -> list[str]:
     for d in bus.devices:
         if d.ref == device.ref:
             continue
-        got = d.part.pin_for("i2c-scl", d.side if d.is_bridge else None)
+        got = d.part.pin_for(protocols.SIGNAL_FUNCTION["scl"], d.side if d.is_bridge else None)
         if got is not None and got[1].drive != "input":
             out.append(d.ref)
     return sorted(set(out))
@@ -1039,7 +1035,7 @@ def can_serve(old_part: Part, new_part: Part, device, bus) -> list[str]:
                            f"pin '{old_name}' serves it on bus {bus.id})")
             continue
         new_name, new_pin = got_new
-        if old_part.sides and protocol in ("i2c", "smbus"):
+        if old_part.sides and protocols.is_open_drain(protocol):
             rule = ({"open-drain", "input"}, "a bridging part on an open-drain bus either "
                     "drives it open-drain (a repeater) or passes it through (a pass "
                     "transistor); a push-pull side would fight the pull-ups")
@@ -1050,8 +1046,9 @@ def can_serve(old_part: Part, new_part: Part, device, bus) -> list[str]:
         if rule is None:
             continue
         allowed, why = rule
-        if (protocol in ("i2c", "smbus") and function == "i2c-scl" and device.role ==
-                "controller" and new_pin.drive == "push-pull"):
+        if (protocols.is_open_drain(protocol)
+                and function == protocols.protocol(protocol).function("scl")
+                and device.role == "controller" and new_pin.drive == "push-pull"):
             others = _scl_drivers_elsewhere(device, bus)
             if others and old_pin.drive != "push-pull":
                 reasons.append(f"{new_part.id} pin '{new_name}' ({function}) is push-pull, but "

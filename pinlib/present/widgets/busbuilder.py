@@ -12,6 +12,7 @@ import tomlkit
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
+from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS, protocol
 from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import atomic_write, tomllib
 from pinlib.engines.dispatch import check_design
@@ -60,6 +61,10 @@ from pinlib.present.widgets.markup import (
     notes_html,
     status_line,
 )
+
+#: The pin functions of an open-drain bus (SDA and SCL), which every part on it needs.
+_OPEN_DRAIN_FUNCTIONS = tuple(dict.fromkeys(fn for name in OPEN_DRAIN_PROTOCOLS
+                                            for fn in protocol(name).functions))
 
 # =========================================================================== bus builder
 
@@ -172,12 +177,12 @@ class BusBuilder(_Panel):
         parts = self._bus_parts()
         cats = sorted({p.category for p in parts.values() if p.category != "controller"})
         fns = sorted({f for p in parts.values() for f in p.functions()} -
-                     {"i2c-sda", "i2c-scl"})
+                     set(_OPEN_DRAIN_FUNCTIONS))
         q = self._quantity
 
         self.title = W.Text(value=title, description="Title", style=style(),
                             layout=field_layout())
-        self.protocol = W.ToggleButtons(options=["i2c", "smbus"], value=protocol,
+        self.protocol = W.ToggleButtons(options=list(OPEN_DRAIN_PROTOCOLS), value=protocol,
                                         description="Protocol",
                                         style=style(button_width="72px"),
                                         layout=toggle_layout())
@@ -276,8 +281,8 @@ class BusBuilder(_Panel):
         """Parts that can sit on an open-drain bus: SDA and SCL pins, not a bridging part
         (a translator splits the bus into segments, which this builder does not draw)."""
         return {pid: p for pid, p in sorted(self.library.placeable().items())
-                if not p.sides and p.category != "cable" and p.pin_for("i2c-sda")
-                and p.pin_for("i2c-scl")}
+                if not p.sides and p.category != "cable"
+                and all(p.pin_for(fn) for fn in _OPEN_DRAIN_FUNCTIONS)}
 
     def _unfit(self, part, *, category: bool) -> str:
         """Why a part is not offered under the filters ("" when it is)."""

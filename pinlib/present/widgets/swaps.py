@@ -18,6 +18,7 @@ import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import PinlibError
+from pinlib.core.protocols import is_open_drain, protocol
 from pinlib.core.quantity import format_si
 from pinlib.engines.dispatch import check_design
 from pinlib.model.design import load_design
@@ -387,7 +388,7 @@ class SwapExplorer(_Panel):
         """The specification of the chart that says most about a bus: the pull-up window of
         an open-drain bus (the segment of the position), the timing budget of an SPI bus,
         the edge chart of a GPIO line."""
-        if bus.protocol in ("i2c", "smbus"):
+        if is_open_drain(bus.protocol):
             ref = self.ref.value
             seg = next((s.id for s in bus.segments if any(d.ref == ref for d in s.devices)),
                        None)
@@ -467,7 +468,7 @@ class SwapExplorer(_Panel):
         shown = rows_of.get(bus) or (r.buses[0] if r.buses else None)
         cols = []
         if shown is not None:
-            family = "open-drain" if shown["protocol"] in ("i2c", "smbus") else "push-pull"
+            family = protocol(shown["protocol"]).family
             cols = [(shown["bus"], name, unit) for name, unit in FIGURES[family]]
         head = ["#", "part", "status", "worst margin", "set by"] + [
             short_label(n) for _, n, _ in cols]
