@@ -23,6 +23,8 @@ import ast
 import textwrap
 from pathlib import Path
 
+import pytest
+
 ROOT = Path(__file__).resolve().parents[1]
 
 #: Layer folders, bottom first; folders in one tuple share a rank.
@@ -227,3 +229,22 @@ def test_a_module_outside_the_layers_and_an_import_of_a_public_name_are_caught(t
     assert any(p.startswith("pinlib.helpers: not in a layer folder") for p in found)
     assert any("pinlib.cli.main (cli) imports pinlib.check (public), upward" in p
                for p in found)
+
+
+# --------------------------------------------------------------------------- public names
+def test_the_public_names_re_export_their_layer():
+    import pinlib.check
+    from pinlib.engines import dispatch
+
+    assert pinlib.check.check_file is dispatch.check_file
+    assert pinlib.check.check_design is dispatch.check_design
+    assert set(pinlib.check.__all__) == set(dispatch.__all__)
+
+
+def test_the_workbooks_import_the_widgets_by_their_public_name():
+    pytest.importorskip("ipywidgets")
+    import pinlib.widgets
+    from pinlib.present import widgets
+
+    assert pinlib.widgets.__all__ == widgets.__all__
+    assert all(getattr(pinlib.widgets, n) is getattr(widgets, n) for n in widgets.__all__)
