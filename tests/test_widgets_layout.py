@@ -294,6 +294,6 @@ def test_change_list_is_grouped_by_bus_status_changes_first():
     assert html.index("Bus <b>flash</b>") < html.index("Bus <b>sensors</b>")
     assert html.count("<details") == 3  # flash, sensors, the part values
     # each figure once: the per-line copies equal to the bus's figure are left out
-    assert "Rise time tr, SDA" not in html and "Rise time tr" in html
+    assert "Rise time tr (30–70 %), SDA" not in html and "Rise time tr" in html
     # no part on the bus adds a pull-up: the effective pull-up is the resistor, shown once
     assert "Pull-up resistor" in html and "Pull-up, effective" not in html

@@ -34,7 +34,7 @@ FIGURES: dict[str, str] = {
     "rp_min": "Rp(min)",
     "rp_max": "Rp(max)",
     "bus_capacitance": "Bus capacitance Cb",
-    "rise_time": "Rise time tr",
+    "rise_time": "Rise time tr (30–70 %)",
     "rise_time_10_90": "Rise time, 10–90 %",
     "fall_time": "Fall time tf",
     "rise_factor": "Rise factor k (tr = k·Rp·Cb)",
@@ -129,7 +129,7 @@ def _split_line(name: str) -> tuple[str, str | None]:
 
 
 def figure_label(name: str) -> str:
-    """A figure's label: ``rp_min`` -> ``"Rp(min)"``, ``rise_time_sda`` -> ``"Rise time tr,
+    """A figure's label: ``rp_min`` -> ``"Rp(min)"``, ``rise_time_sda`` -> ``"Rise time tr (30–70 %),
     SDA"``; an id without an entry in :data:`FIGURES` in plain words."""
     if name in FIGURES:
         return FIGURES[name]
