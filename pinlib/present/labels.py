@@ -129,8 +129,9 @@ def _split_line(name: str) -> tuple[str, str | None]:
 
 
 def figure_label(name: str) -> str:
-    """A figure's label: ``rp_min`` -> ``"Rp(min)"``, ``rise_time_sda`` -> ``"Rise time tr (30–70 %),
-    SDA"``; an id without an entry in :data:`FIGURES` in plain words."""
+    """A figure's label: ``rp_min`` -> ``"Rp(min)"``, ``rise_time_sda`` ->
+    ``"Rise time tr (30–70 %), SDA"``; an id without an entry in :data:`FIGURES` in plain
+    words."""
     if name in FIGURES:
         return FIGURES[name]
     base, line = _split_line(name)
