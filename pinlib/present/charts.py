@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import math
 import re
+import sys
 from collections.abc import Callable, Mapping, Sequence
 from contextvars import ContextVar
 from typing import TYPE_CHECKING
@@ -141,6 +142,16 @@ _PREFIXES = {12: "T", 9: "G", 6: "M", 3: "k", 0: "", -3: "m", -6: "µ", -9: "n",
 
 # --------------------------------------------------------------------------- helpers
 def _alt():
+    if "altair" not in sys.modules and "rfc3987_syntax" not in sys.modules:
+        # jsonschema (altair's validator) builds the grammars of its optional IRI format
+        # checker on import when that package is installed: over a second of start-up
+        # for a format no chart schema uses.  Hide it for altair's import only.
+        sys.modules["rfc3987_syntax"] = None
+        try:
+            import altair as alt
+        finally:
+            del sys.modules["rfc3987_syntax"]
+        return alt
     import altair as alt
 
     return alt
