@@ -1123,7 +1123,7 @@ def spec(build: Callable[..., object], *args, **kwargs) -> dict:
     dict
         The specification, data values inline in each layer.
     """
-    from altair.utils import schemapi
+    schemapi = _alt().utils.schemapi  # altair imported the light way (see _alt)
 
     held: list = []
     pending: list = []
@@ -1147,7 +1147,7 @@ def spec(build: Callable[..., object], *args, **kwargs) -> dict:
 
 def _vl_version() -> str | None:
     """The Vega-Lite version altair writes, as vl_convert names it (``"6.4"``)."""
-    import altair as alt
+    alt = _alt()
     import vl_convert
 
     wanted = ".".join(alt.SCHEMA_VERSION.lstrip("v").split(".")[:2])

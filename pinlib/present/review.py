@@ -210,17 +210,14 @@ class _Keys:
 def _draw(key, kind, title, caption, make) -> ReviewChart:
     """Build a chart; an input the chart refuses becomes a chart with an error, so one
     undrawable figure does not lose the whole report."""
-    from pinlib.present.charts import _alt, to_svg
+    from pinlib.present.charts import spec as chart_spec
+    from pinlib.present.charts import to_svg
 
     try:
-        # altair checks every object it builds against its schema while building (its
-        # debug mode): most of a report's chart time, for specs the charts module's own
-        # tests validate.  Off while this chart is built.
-        with _alt().utils.schemapi.debug_mode(False):
-            chart = make()
-        # The charts module builds valid specs (its own tests validate them); skipping
-        # altair's schema validation here saves most of the report's time.
-        spec = chart.to_dict(validate=False) if hasattr(chart, "to_dict") else chart
+        # The charts module builds valid specs (its own tests validate them): spec()
+        # builds the chart without altair's schema checks (its debug mode, most of a
+        # report's chart time) and without handing it the data rows to copy.
+        spec = chart_spec(make)
         svg = to_svg(spec)
     except PinlibError as err:
         return ReviewChart(key, kind, title, caption, None, err.message)

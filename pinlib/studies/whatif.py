@@ -714,14 +714,22 @@ def _sensitivities(u: np.ndarray, columns: list, params: list[Parameter]) -> lis
         for i, r in zip(whole, fit(z, np.stack([columns[i] for i in whole], axis=1)), strict=True):
             if r is not None:
                 out[i] = r
+    # a margin with non-finite boards is fitted on its finite ones; margins finite on the
+    # same boards share one fit (one Gram matrix: most of the time of a fit)
+    groups: dict[bytes, tuple[np.ndarray, list[int]]] = {}
+    done = set(whole)
     for i, c in enumerate(columns):
-        if c is None or i in whole:
+        if c is None or i in done:
             continue
         ok = np.isfinite(c)
         if ok.sum() > 2:
-            zz = z[ok]
-            zz = (zz - zz.mean(axis=0))
-            r = fit(zz, c[ok][:, None])[0]
+            groups.setdefault(np.packbits(ok).tobytes(),
+                              (ok, []))[1].append(i)
+    for ok, cols in groups.values():
+        zz = z[ok]
+        zz = (zz - zz.mean(axis=0))
+        for i, r in zip(cols, fit(zz, np.stack([columns[i][ok] for i in cols], axis=1)),
+                        strict=True):
             if r is not None:
                 out[i] = r
     return out
