@@ -396,7 +396,9 @@ def _mc_rows(mc) -> list[dict]:
                 "varies": bool(_get(entry, "varies", True)),
                 "failures": passes.passes < passes.n, "lowest": lowest,
                 "sensitivity": list(_get(entry, "sensitivity", []) or [])[:3],
-                "source": _get(entry, "source", "") or ""})
+                "source": _get(entry, "source", "") or "",
+                # a long run keeps the margins of its first boards only
+                "of": None if samples is None or samples.size >= passes.n else passes.n})
             continue
         samples = _get(entry, "samples")
         if samples is None:
@@ -445,7 +447,9 @@ def _mc_charts(mc, keys) -> tuple[list, list]:
         title = f"Monte Carlo: {r['where']}"
         limit = "margin 0 (the limit itself)" if r["unit"] == "%" and r["limit"] == 0.0 \
             else "the check's limit"
-        caption = (f"{r['label']} on every sampled board. Bars in the pass colour hold boards "
+        boards = ("every sampled board" if not r.get("of") else
+                  f"the first {r['samples'].size:,} of the {r['of']:,} sampled boards")
+        caption = (f"{r['label']} on {boards}. Bars in the pass colour hold boards "
                    f"that pass, in the fail colour boards that fail; the dashed line is "
                    f"{limit}.")
         out.append(_draw(keys("mc", r["where"]), "histogram", title, caption,
