@@ -403,6 +403,32 @@ def test_a_long_run_keeps_counts_of_every_board_and_samples_of_the_first(tmp_pat
     assert any("first 1,000 boards" in n for n in part.notes)
 
 
+def test_margin_histograms_count_every_board_on_the_right_side_of_the_limit(monkeypatch):
+    d = load_design(DEMO)
+    full = whatif.monte_carlo(d, 2000, seed=5, chunk=2000)
+    monkeypatch.setattr(whatif.MarginHistogram, "MAX_BINS", 50)   # force merging of bins
+    many = whatif.monte_carlo(d, 2000, seed=5, chunk=300)
+    counted = 0
+    for x, y in zip(full.checks, many.checks, strict=True):
+        if x.margins is None:
+            assert y.histogram is None
+            continue
+        finite = x.margins[np.isfinite(x.margins)]
+        for h in (x.histogram, y.histogram):
+            assert h.total == finite.size, x.name
+            got = h.bins()
+            if got is None:
+                continue
+            w, k, count = got
+            assert count.sum() == finite.size
+            # bins [k·w, (k + 1)·w): those with k >= 0 hold exactly the non-negative margins
+            assert count[k >= 0].sum() == np.count_nonzero(finite >= 0), x.name
+            if h is y.histogram:
+                assert k.max() - k.min() < 50      # merged as the bins grew past MAX_BINS
+            counted += 1
+    assert counted > 10
+
+
 def test_monte_carlo_refuses_absurd_work(tmp_path):
     d = design(tmp_path, RC_BUS)
     with pytest.raises(InputError, match="too many boards") as err:

@@ -993,7 +993,7 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
 def histogram(samples, *, limit=None, unit: str, label: str, limit_kind: str = "max",
               bins: int = 40, title: str | None = None, subtitle: str | None = None,
               count_label: str = "Samples per bin (count)",
-              width: int = _WIDTH, height: int = _HEIGHT) -> alt.LayerChart:
+              width: int = _WIDTH, height: int = _HEIGHT, binned=None) -> alt.LayerChart:
     """Histogram of Monte Carlo samples of one figure, with its limit.
 
     Parameters
@@ -1021,6 +1021,13 @@ def histogram(samples, *, limit=None, unit: str, label: str, limit_kind: str = "
         Width of the whole chart, axes and legend included. [px]
     height : int, optional
         Height of the plot. [px]
+    binned : (float, array_like, array_like), optional
+        Samples already counted, instead of ``samples`` (which may then be None):
+        ``(w, k, count)``, bin ``k`` holding the samples in ``[limit + k·w,
+        limit + (k + 1)·w)`` (a run too long to keep every sample, e.g.
+        :class:`pinlib.studies.whatif.MarginHistogram`); needs ``limit`` and
+        ``limit_kind="min"``.  Adjacent bins are merged to about ``bins`` bars, still
+        aligned on the limit. [unit], [1], [1]
 
     Returns
     -------
@@ -1034,7 +1041,11 @@ def histogram(samples, *, limit=None, unit: str, label: str, limit_kind: str = "
     and passes when ``a >= limit`` — the same comparison as the check, so the pass bars
     hold exactly the samples that pass.
     """
-    alt = _alt()
+    if binned is not None:
+        return _histogram_binned(binned, limit=limit, unit=unit, label=label,
+                                 limit_kind=limit_kind, bins=bins, title=title,
+                                 subtitle=subtitle, count_label=count_label, width=width,
+                                 height=height)
     s = _array(samples, "samples", ndim=(1, 2)).ravel()
     s = s[np.isfinite(s)]
     if s.size == 0:
@@ -1073,8 +1084,46 @@ def histogram(samples, *, limit=None, unit: str, label: str, limit_kind: str = "
         ok = (k_lo + 1 <= 0) if limit_kind == "max" else (k_lo >= 0)
         status = np.where(ok, "pass", "fail").astype(object)
     counts = np.bincount(idx, minlength=edges.size - 1)
+    return _histogram_bars(edges, counts, status, lim, unit=unit, label=label,
+                           limit_kind=limit_kind, title=title, subtitle=subtitle,
+                           count_label=count_label, width=width, height=height,
+                           scale_with=s[[0]])
 
-    fx, ux = display_scale(np.append(edges, s[[0]]), unit)
+
+def _histogram_binned(binned, *, limit, unit, label, limit_kind, bins, title, subtitle,
+                      count_label, width, height):
+    """:func:`histogram` of counts already binned on the limit."""
+    if limit is None or limit_kind != "min":
+        raise InputError(M.UNKNOWN_LIMIT_KIND, field="limit_kind", value=limit_kind,
+                         expected="'min' and a limit, for counted bins")
+    lim = _scalar(limit, "limit")
+    w = _scalar(binned[0], "binned width")
+    k = np.asarray(binned[1], dtype=np.int64).ravel()
+    got = np.asarray(binned[2], dtype=np.int64).ravel()
+    if not (w > 0 and k.size and k.size == got.size and got.sum() > 0):
+        raise InputError(M.NO_FINITE_SAMPLE, field="binned", expected="counted samples")
+    n = int(bins)
+    if n < 1:
+        raise InputError(M.TOO_FEW_BINS, field="bins", value=bins, expected="at least 1")
+    # the limit's own bin boundary (k = 0) stays in view, as with samples
+    lo, hi = min(int(k.min()), 0), max(int(k.max()) + 1, 0)
+    g = max(1, math.ceil((hi - lo) / n))
+    kk = np.floor_divide(k, g)
+    k_lo = np.arange(min(int(kk.min()), lo // g), max(int(kk.max()) + 1, -(-hi // g)))
+    counts = np.zeros(k_lo.size, dtype=np.int64)
+    np.add.at(counts, kk - k_lo[0], got)
+    edges = lim + g * w * np.append(k_lo, k_lo[-1] + 1)
+    status = np.where(k_lo >= 0, "pass", "fail").astype(object)
+    return _histogram_bars(edges, counts, status, lim, unit=unit, label=label,
+                           limit_kind=limit_kind, title=title, subtitle=subtitle,
+                           count_label=count_label, width=width, height=height,
+                           scale_with=edges[:1])
+
+
+def _histogram_bars(edges, counts, status, lim, *, unit, label, limit_kind, title, subtitle,
+                    count_label, width, height, scale_with):
+    alt = _alt()
+    fx, ux = display_scale(np.append(edges, scale_with), unit)
     x_title = _title(label, ux)
     if lim is None:
         domain, colours = ["samples"], [REGION]

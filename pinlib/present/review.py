@@ -397,8 +397,11 @@ def _mc_rows(mc) -> list[dict]:
                 "failures": passes.passes < passes.n, "lowest": lowest,
                 "sensitivity": list(_get(entry, "sensitivity", []) or [])[:3],
                 "source": _get(entry, "source", "") or "",
-                # a long run keeps the margins of its first boards only
-                "of": None if samples is None or samples.size >= passes.n else passes.n})
+                # a long run keeps the margins of its first boards only, and counts
+                # every board's in bins
+                "of": None if samples is None or samples.size >= passes.n else passes.n,
+                "binned": None if samples is None or samples.size >= passes.n
+                or _get(entry, "histogram") is None else entry.histogram.bins()})
             continue
         samples = _get(entry, "samples")
         if samples is None:
@@ -447,15 +450,16 @@ def _mc_charts(mc, keys) -> tuple[list, list]:
         title = f"Monte Carlo: {r['where']}"
         limit = "margin 0 (the limit itself)" if r["unit"] == "%" and r["limit"] == 0.0 \
             else "the check's limit"
-        boards = ("every sampled board" if not r.get("of") else
-                  f"the first {r['samples'].size:,} of the {r['of']:,} sampled boards")
+        boards = ("every sampled board" if not r.get("of") or r.get("binned") is not None
+                  else f"the first {r['samples'].size:,} of the {r['of']:,} sampled boards")
         caption = (f"{r['label']} on {boards}. Bars in the pass colour hold boards "
                    f"that pass, in the fail colour boards that fail; the dashed line is "
                    f"{limit}.")
         out.append(_draw(keys("mc", r["where"]), "histogram", title, caption,
                          lambda r=r, t=title, sub=sub: ch.histogram(
                              r["samples"], limit=r["limit"], unit=r["unit"], label=r["label"],
-                             limit_kind=r["kind"], title=t, subtitle=sub)))
+                             limit_kind=r["kind"], title=t, subtitle=sub,
+                             binned=r.get("binned"))))
     return out, shown
 
 

@@ -68,6 +68,7 @@ __all__ = [
     "Sampled",
     "draw",
     "wilson_interval",
+    "MarginHistogram",
     "McCheck",
     "Yield",
     "McResult",
@@ -461,6 +462,64 @@ class Yield:
                 "interval": list(self.interval)}
 
 
+class MarginHistogram:
+    """Counts of relative margins in fixed bins aligned on 0 (the limit), filled chunk by
+    chunk: bin ``k`` holds the margins in ``[k·width, (k + 1)·width)``, so a bin lies
+    wholly on one side of the limit (``k >= 0``: the boards pass).
+
+    The width is set from the first margins that spread (a :data:`FINE_BINS`-th of their
+    range, the limit included); when later margins would need more than
+    :data:`MAX_BINS` bins, the width doubles and pairs of bins merge (still aligned on
+    0).  Non-finite margins are left out.
+    """
+
+    FINE_BINS = 400
+    MAX_BINS = 4000
+
+    def __init__(self):
+        self.width: float | None = None
+        self.counts: dict[int, int] = {}
+        self._pending: list[float] = []   # equal margins seen before any spread
+
+    def add(self, mg: np.ndarray) -> None:
+        x = mg[np.isfinite(mg)]
+        if not x.size:
+            return
+        if self.width is None:
+            lo, hi = min(float(x.min()), 0.0), max(float(x.max()), 0.0)
+            if hi <= lo:
+                self._pending.append(float(x.size))   # all 0: counted once a width is set
+                return
+            self.width = (hi - lo) / self.FINE_BINS
+            if self._pending:
+                self.counts[0] = int(sum(self._pending))
+                self._pending = []
+        k = np.floor(x / self.width).astype(np.int64)
+        while int(max(k.max(), max(self.counts, default=0))) - int(
+                min(k.min(), min(self.counts, default=0))) >= self.MAX_BINS:
+            self.width *= 2.0
+            k = np.floor_divide(k, 2)
+            merged: dict[int, int] = {}
+            for b, c in self.counts.items():
+                merged[b // 2] = merged.get(b // 2, 0) + c
+            self.counts = merged
+        bins, got = np.unique(k, return_counts=True)
+        for b, c in zip(bins.tolist(), got.tolist(), strict=True):
+            self.counts[b] = self.counts.get(b, 0) + c
+
+    @property
+    def total(self) -> int:
+        return sum(self.counts.values()) + int(sum(self._pending))
+
+    def bins(self) -> tuple[float, np.ndarray, np.ndarray] | None:
+        """``(width, k, count)`` of the bins from the lowest to the highest filled one
+        (empty ones between included); None while no margin has spread."""
+        if self.width is None or not self.counts:
+            return None
+        k = np.arange(min(self.counts), max(self.counts) + 1)
+        return self.width, k, np.array([self.counts.get(int(b), 0) for b in k], dtype=np.int64)
+
+
 @dataclass
 class McCheck:
     """One check over the drawn boards.
@@ -488,6 +547,8 @@ class McCheck:
     sampled : int or None
         How many boards :attr:`margins` and :attr:`values` hold: all of them up to
         :data:`SENSITIVITY_BOARDS`, then the first that many. [1]
+    histogram : MarginHistogram or None
+        The finite margins of every board, counted in fine bins. [1]
     """
 
     name: str
@@ -510,6 +571,7 @@ class McCheck:
     high: float | None = None
     worst_board: int | None = None
     sampled: int | None = None
+    histogram: MarginHistogram | None = None
 
     @property
     def complete(self) -> bool:
@@ -851,7 +913,7 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
                 Yield(passes, n, wilson_interval(passes, n)), mg, val, sens, r2,
                 warns=int(st.warns[j]), fails=int(st.fails[j]),
                 low=st.extreme(j, 0), high=st.extreme(j, 1), worst_board=st.worst_board(j),
-                sampled=kept))
+                sampled=kept, histogram=st.hist[j]))
         buses[bus.id] = Yield(st.bus_ok, n, wilson_interval(st.bus_ok, n))
     board = Yield(board_ok, n, wilson_interval(board_ok, n)) if stores else None
     notes = _not_sampled(design) + pp_notes
@@ -888,6 +950,7 @@ class _Tally:
         # per check: lowest and highest finite margin, and the boards they came from
         self.ext = np.full((k, 2), np.nan)
         self.at = np.full((k, 2), -1, dtype=np.int64)
+        self.hist = [None if c.margin is None else MarginHistogram() for c in items]
 
     def add(self, bb, start: int, m: int) -> np.ndarray:
         """Count one chunk of boards ``start .. start + m``; its boards where every check
@@ -905,7 +968,9 @@ class _Tally:
                 if c.value is not None:
                     self.value[j][start:start + take] = c.value[:take]
             if c.margin is not None:
-                self._extremes(j, np.asarray(c.margin, dtype=float).reshape(m), start)
+                mg = np.asarray(c.margin, dtype=float).reshape(m)
+                self._extremes(j, mg, start)
+                self.hist[j].add(mg)
         self.bus_ok += int(np.count_nonzero(ok))
         return ok
 
