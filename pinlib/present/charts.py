@@ -492,7 +492,12 @@ def _titled(chart, title: str | None, subtitle: str | None, width: int, height: 
     # Legends below the plot stack one under the other (Vega's default puts them side by
     # side, past the chart's width); the layout object goes to Vega as an expression.
     stack = alt.ExprRef(expr="{bottom: {direction: 'vertical', anchor: 'start'}}")
-    return chart.properties(**props).configure(font=FONT).configure_legend(layout=stack)
+    # as .configure(font=FONT).configure_legend(layout=stack), set on the one copy
+    # properties() made: each altair call copies every layer of the chart once more
+    out = chart.properties(**props)
+    out.config = alt.Config(font=FONT)
+    out.config["legend"] = alt.LegendConfig(layout=stack)
+    return out
 
 
 def _unique(labels) -> list[str]:
