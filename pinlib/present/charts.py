@@ -599,11 +599,11 @@ def pullup_window(cb, rp_min, rp_max, *, chosen_cb, chosen_rp,
     # both axes padded: Rp(min), flat, would otherwise lie on the frame
     area = alt.Chart(_data(band)).mark_area(opacity=_REGION_OPACITY).encode(
         x=_q("cb", x_title, log=True, pad=True),
-        y=_q("lo", y_title, log=True, channel="y", pad=True), y2="hi:Q", color=colour)
+        y=_q("lo", y_title, log=True, channel="y", pad=True), y2=alt.Y2("hi:Q"), color=colour)
     curves = alt.Chart(_data(lines)).mark_line(strokeWidth=2).encode(
         x=_q("cb", x_title, log=True, pad=True),
         y=_q("rp", y_title, log=True, channel="y", pad=True),
-        color=colour, detail="series:N")
+        color=colour, detail=alt.Detail("series:N"))
     marker = alt.Chart(_data(point)).mark_point(
         shape="diamond", filled=True, size=140, opacity=1).encode(
         x=_q("cb", x_title, log=True, pad=True),
@@ -734,7 +734,7 @@ def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
                       legend=_legend("Points", kinds, _plot_room(width)))
     layers = [alt.Chart(_data(rows)).mark_line(strokeWidth=2).encode(
         x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
-        color=colour, detail="series:N")]
+        color=colour, detail=alt.Detail("series:N"))]
     tips = [alt.Tooltip("load:Q", title=x_title), alt.Tooltip("t:Q", title=y_title)]
     if pts is not None:
         layers.append(alt.Chart(_data(pts)).mark_point(
@@ -751,7 +751,7 @@ def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
             align="left", baseline="middle", dx=9, fontSize=11, fontWeight="bold",
             color=OPERATING).encode(
             x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
-            text="note:N"))
+            text=alt.Text("note:N")))
     return _titled(alt.layer(*layers), title, subtitle, width, height)
 
 
@@ -847,14 +847,14 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
                        legend=_legend(None, fixed + names, _plot_room(width)))
     # the voltage axis padded: VDD or a threshold is never drawn on the frame
     band = alt.Chart(_data(band_rows)).mark_rect(
-        opacity=_BAND_OPACITY).encode(y=_q("lo", y_title, channel="y", pad=True), y2="hi:Q",
+        opacity=_BAND_OPACITY).encode(y=_q("lo", y_title, channel="y", pad=True), y2=alt.Y2("hi:Q"),
                                       color=colour)
     rules = alt.Chart(_data(levels)).mark_rule(strokeDash=[6, 3]).encode(
         y=_q("v", y_title, channel="y", pad=True), color=colour)
     words = alt.Chart(_data(levels)).mark_text(
         align="right", baseline="bottom", dx=-4, dy=-2, fontSize=10, fontWeight="bold",
         color=LIMIT).encode(x=alt.value("width"), y=_q("v", y_title, channel="y", pad=True),
-                            text="text:N")
+                            text=alt.Text("text:N"))
     layers = [band, rules, words]
     if vdd_label:
         layers.append(alt.Chart(_data(vdd_rows))
@@ -862,7 +862,7 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
                           y=_q("v", y_title, channel="y", pad=True), color=colour))
     layers.append(alt.Chart(_data(rows)).mark_line(strokeWidth=1.8).encode(
         x=_q("t", x_title), y=_q("v", y_title, channel="y", pad=True), color=colour,
-        detail="series:N"))
+        detail=alt.Detail("series:N")))
     return _titled(alt.layer(*layers), title, subtitle, width, height)
 
 
@@ -977,7 +977,7 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
     layers = [alt.Chart(_data(bars)).mark_bar(
         height=bar_h, yOffset=drop, stroke="white", strokeWidth=1).encode(
         x=alt.X("t:Q", stack="zero", axis=_axis(x_title), scale=x_pad), y=y, color=colour,
-        order="order:Q",
+        order=alt.Order("order:Q"),
         tooltip=[alt.Tooltip("path:N"), alt.Tooltip("series:N", title="component"),
                  alt.Tooltip("t:Q", title=x_title)])]
     if ticks:
@@ -986,12 +986,12 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
             x=alt.X("t:Q", axis=_axis(x_title), scale=x_pad), y=y, color=colour))
     layers.append(alt.Chart(_data(names)).mark_text(
         align="left", baseline="bottom", dx=2, dy=above, fontSize=11, color=INK).encode(
-        x=alt.value(0), y=y, text="path:N"))
+        x=alt.value(0), y=y, text=alt.Text("path:N")))
     if notes:
         layers.append(alt.Chart(_data(notes)).mark_text(
             align="right", baseline="bottom", dx=-2, dy=above, fontSize=11,
             fontWeight="bold").encode(
-            x=alt.value("width"), y=y, text="text:N", color=colour))
+            x=alt.value("width"), y=y, text=alt.Text("text:N"), color=colour))
     return _titled(alt.layer(*layers), title, subtitle, width, plot_h)
 
 
@@ -1142,9 +1142,9 @@ def _histogram_bars(edges, counts, status, lim, *, unit, label, limit_kind, titl
              "z": 0, "series": str(status[i])} for i in range(counts.size)]
     layers = [alt.Chart(_data(bars)).mark_rect(
         opacity=0.85, stroke="white", strokeWidth=0.5).encode(
-        x=alt.X("a:Q", axis=_axis(x_title), scale=x_scale), x2="b:Q",
+        x=alt.X("a:Q", axis=_axis(x_title), scale=x_scale), x2=alt.X2("b:Q"),
         y=alt.Y("n:Q", axis=alt.Axis(title=count_label, format="~s", labelOverlap=True)),
-        y2="z:Q",
+        y2=alt.Y2("z:Q"),
         color=colour,
         tooltip=[alt.Tooltip("a:Q", title="from"), alt.Tooltip("b:Q", title="to"),
                  alt.Tooltip("n:Q", title="samples")])]
