@@ -598,6 +598,27 @@ def test_review_of_a_monte_carlo_run(demo):
         review.MC_CHARTS, sum(1 for c in mc.checks if c.varies))
 
 
+def test_histograms_of_a_long_run_say_which_boards_they_hold(demo, monkeypatch):
+    pytest.importorskip("pinlib.studies.whatif")
+    from pinlib.studies import whatif
+
+    design, _ = demo
+    monkeypatch.setattr(whatif, "SENSITIVITY_BOARDS", 200)   # a long run, in small
+    mc = whatif.monte_carlo(design, 500, seed=11, progress=False, chunk=150)
+    charts, _ = review._mc_charts(mc, review._Keys())
+    assert charts and all(chart.svg and chart.error is None for chart in charts)
+    # the histograms count every board's margin (in bins fixed as the run goes)
+    assert all("on every sampled board" in chart.caption for chart in charts)
+    for c in mc.checks:
+        c.histogram = None                       # a run that kept no counted bins
+    charts, _ = review._mc_charts(mc, review._Keys())
+    for chart in charts:
+        assert "on the first 200 of the 500 sampled boards" in chart.caption
+    whole = whatif.monte_carlo(design, 150, seed=11, progress=False)
+    charts, _ = review._mc_charts(whole, review._Keys())
+    assert all("on every sampled board" in chart.caption for chart in charts)
+
+
 def test_command_without_a_monte_carlo_engine(tmp_path, capsys, monkeypatch):
     from pinlib.cli.commands import report as cmd
 

@@ -352,6 +352,104 @@ def test_seeded_runs_are_reproducible(tmp_path):
     assert np.array_equal(free.draws, again.draws)
 
 
+def _same_counts(a, b):
+    assert a.n == b.n and a.board == b.board and a.buses == b.buses
+    for x, y in zip(a.checks, b.checks, strict=True):
+        assert x.name == y.name and x.passes == y.passes
+        assert (x.warns, x.fails) == (y.warns, y.fails), x.name
+        assert (x.low, x.high, x.worst_board) == (y.low, y.high, y.worst_board), x.name
+
+
+@pytest.mark.parametrize("distribution", ["uniform", "normal"])
+def test_chunks_do_not_change_the_run(distribution):
+    # the demo: open-drain buses, a bridge, and the SPI flash bus (push-pull tables)
+    d = replace(load_design(DEMO), distribution=distribution)
+    one = whatif.monte_carlo(d, 3000, seed=7, chunk=3000)
+    for chunk in (1000, 700):
+        many = whatif.monte_carlo(d, 3000, seed=7, chunk=chunk)
+        assert np.array_equal(one.draws, many.draws)     # board i's draws, whatever the chunk
+        _same_counts(one, many)
+        for x, y in zip(one.checks, many.checks, strict=True):
+            for a, b in ((x.margins, y.margins), (x.values, y.values)):
+                assert (a is None) == (b is None)
+                if a is not None:
+                    assert np.array_equal(a, b, equal_nan=True), x.name
+            assert x.sensitivity == y.sensitivity and x.r2 == y.r2, x.name
+
+
+def test_a_long_run_keeps_counts_of_every_board_and_samples_of_the_first(tmp_path, monkeypatch):
+    d = tolerant(tmp_path)
+    full = whatif.monte_carlo(d, 3000, seed=11, chunk=400)
+    monkeypatch.setattr(whatif, "SENSITIVITY_BOARDS", 1000)
+    part = whatif.monte_carlo(d, 3000, seed=11, chunk=400)
+    _same_counts(full, part)
+    assert np.array_equal(part.draws, full.draws[:1000])
+    assert any(c.varies for c in full.checks)
+    for x, y in zip(full.checks, part.checks, strict=True):
+        assert x.sampled == 3000 and y.sampled == 1000
+        assert x.varies == y.varies, x.name
+        if x.margins is None:
+            continue
+        assert np.array_equal(y.margins, x.margins[:1000], equal_nan=True), x.name
+        # the lowest margin is of every board; it is the full run's one
+        assert y.margin_quantiles((0.0,)) == x.margin_quantiles((0.0,)), x.name
+        fin = np.isfinite(x.margins)
+        if fin.any():
+            assert x.low == float(x.margins[fin].min())
+            assert x.margins[x.worst_board] == x.low
+            assert x.high == float(x.margins[fin].max())
+        # pass, warn and fail counts add up to the boards
+        assert x.passes.passes + x.fails == x.passes.n, x.name
+    assert any("first 1,000 boards" in n for n in part.notes)
+
+
+def test_margin_histograms_count_every_board_on_the_right_side_of_the_limit(monkeypatch):
+    d = load_design(DEMO)
+    full = whatif.monte_carlo(d, 2000, seed=5, chunk=2000)
+    monkeypatch.setattr(whatif.MarginHistogram, "MAX_BINS", 50)   # force merging of bins
+    many = whatif.monte_carlo(d, 2000, seed=5, chunk=300)
+    counted = 0
+    for x, y in zip(full.checks, many.checks, strict=True):
+        if x.margins is None:
+            assert y.histogram is None
+            continue
+        finite = x.margins[np.isfinite(x.margins)]
+        for h in (x.histogram, y.histogram):
+            assert h.total == finite.size, x.name
+            got = h.bins()
+            if got is None:
+                continue
+            w, k, count = got
+            assert count.sum() == finite.size
+            # bins [k·w, (k + 1)·w): those with k >= 0 hold exactly the non-negative margins
+            assert count[k >= 0].sum() == np.count_nonzero(finite >= 0), x.name
+            if h is y.histogram:
+                assert k.max() - k.min() < 50      # merged as the bins grew past MAX_BINS
+            counted += 1
+    assert counted > 10
+
+
+def test_monte_carlo_refuses_absurd_work(tmp_path):
+    d = design(tmp_path, RC_BUS)
+    with pytest.raises(InputError, match="too many boards") as err:
+        whatif.monte_carlo(d, whatif.MAX_BOARDS + 1)
+    assert "100,000,000" in err.value.message
+
+
+def test_an_interrupt_stops_the_run_between_chunks(tmp_path):
+    d = design(tmp_path, RC_BUS)
+    seen = []
+
+    def stop(done, total):
+        seen.append(done)
+        if done >= 2000:
+            raise KeyboardInterrupt
+
+    with pytest.raises(KeyboardInterrupt):
+        whatif.monte_carlo(d, 10_000, seed=1, chunk=1000, progress=stop)
+    assert seen == [1000, 2000]
+
+
 def test_normal_draws_put_the_tolerance_at_three_sigma(tmp_path):
     d = tolerant(tmp_path, extra='distribution = "normal"\n')
     mc = whatif.monte_carlo(d, 20_000, seed=3)

@@ -268,6 +268,7 @@ NOT_A_PROPORTION = "not a proportion"
 NOT_A_CONFIDENCE = "not a confidence level"
 TOO_FEW_SAMPLES = "too few samples"
 CHUNK_NOT_POSITIVE = "chunk must be positive"
+TOO_MANY_SAMPLES = "too many boards for one run"
 # pinlib/present/plotdata.py
 DRAWN_FOR_PROTOCOLS = "{what} is drawn for {protocols} buses"
 NO_EVALUATED_LINE = "no evaluated line of that name on the bus"

@@ -192,6 +192,19 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
     return PpBatch(n, names, items, notes, int(where.size))
 
 
+def prepare_table(bus: Bus, design, nominal, tables: dict, span: float, floor: float,
+                  boards: int, progress=None) -> None:
+    """Build (or decline) the bus's table in ``tables`` for a run of ``boards`` variants,
+    before the run's first :func:`build` call.
+
+    :func:`build` decides whether a table pays from the variants of the call at hand; a
+    run that evaluates its boards in chunks calls this first with all of them, so that
+    the decision, and so every board's result, does not depend on the chunk size.
+    """
+    if parameter_specs(bus):
+        _table(bus, design, chosen_resistors(nominal), tables, span, floor, boards, progress)
+
+
 def _table(bus, design, chosen, tables, span, floor, distinct, progress):
     """The bus's table from ``tables``, built on first use when it costs fewer engine
     evaluations than the distinct variants; None when there is none."""

@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import math
 import re
+import sys
 from collections.abc import Callable, Mapping, Sequence
 from contextvars import ContextVar
 from typing import TYPE_CHECKING
@@ -141,6 +142,16 @@ _PREFIXES = {12: "T", 9: "G", 6: "M", 3: "k", 0: "", -3: "m", -6: "µ", -9: "n",
 
 # --------------------------------------------------------------------------- helpers
 def _alt():
+    if "altair" not in sys.modules and "rfc3987_syntax" not in sys.modules:
+        # jsonschema (altair's validator) builds the grammars of its optional IRI format
+        # checker on import when that package is installed: over a second of start-up
+        # for a format no chart schema uses.  Hide it for altair's import only.
+        sys.modules["rfc3987_syntax"] = None
+        try:
+            import altair as alt
+        finally:
+            del sys.modules["rfc3987_syntax"]
+        return alt
     import altair as alt
 
     return alt
@@ -481,7 +492,12 @@ def _titled(chart, title: str | None, subtitle: str | None, width: int, height: 
     # Legends below the plot stack one under the other (Vega's default puts them side by
     # side, past the chart's width); the layout object goes to Vega as an expression.
     stack = alt.ExprRef(expr="{bottom: {direction: 'vertical', anchor: 'start'}}")
-    return chart.properties(**props).configure(font=FONT).configure_legend(layout=stack)
+    # as .configure(font=FONT).configure_legend(layout=stack), set on the one copy
+    # properties() made: each altair call copies every layer of the chart once more
+    out = chart.properties(**props)
+    out.config = alt.Config(font=FONT)
+    out.config["legend"] = alt.LegendConfig(layout=stack)
+    return out
 
 
 def _unique(labels) -> list[str]:
@@ -583,11 +599,11 @@ def pullup_window(cb, rp_min, rp_max, *, chosen_cb, chosen_rp,
     # both axes padded: Rp(min), flat, would otherwise lie on the frame
     area = alt.Chart(_data(band)).mark_area(opacity=_REGION_OPACITY).encode(
         x=_q("cb", x_title, log=True, pad=True),
-        y=_q("lo", y_title, log=True, channel="y", pad=True), y2="hi:Q", color=colour)
+        y=_q("lo", y_title, log=True, channel="y", pad=True), y2=alt.Y2("hi:Q"), color=colour)
     curves = alt.Chart(_data(lines)).mark_line(strokeWidth=2).encode(
         x=_q("cb", x_title, log=True, pad=True),
         y=_q("rp", y_title, log=True, channel="y", pad=True),
-        color=colour, detail="series:N")
+        color=colour, detail=alt.Detail("series:N"))
     marker = alt.Chart(_data(point)).mark_point(
         shape="diamond", filled=True, size=140, opacity=1).encode(
         x=_q("cb", x_title, log=True, pad=True),
@@ -718,7 +734,7 @@ def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
                       legend=_legend("Points", kinds, _plot_room(width)))
     layers = [alt.Chart(_data(rows)).mark_line(strokeWidth=2).encode(
         x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
-        color=colour, detail="series:N")]
+        color=colour, detail=alt.Detail("series:N"))]
     tips = [alt.Tooltip("load:Q", title=x_title), alt.Tooltip("t:Q", title=y_title)]
     if pts is not None:
         layers.append(alt.Chart(_data(pts)).mark_point(
@@ -735,7 +751,7 @@ def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
             align="left", baseline="middle", dx=9, fontSize=11, fontWeight="bold",
             color=OPERATING).encode(
             x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
-            text="note:N"))
+            text=alt.Text("note:N")))
     return _titled(alt.layer(*layers), title, subtitle, width, height)
 
 
@@ -831,14 +847,14 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
                        legend=_legend(None, fixed + names, _plot_room(width)))
     # the voltage axis padded: VDD or a threshold is never drawn on the frame
     band = alt.Chart(_data(band_rows)).mark_rect(
-        opacity=_BAND_OPACITY).encode(y=_q("lo", y_title, channel="y", pad=True), y2="hi:Q",
+        opacity=_BAND_OPACITY).encode(y=_q("lo", y_title, channel="y", pad=True), y2=alt.Y2("hi:Q"),
                                       color=colour)
     rules = alt.Chart(_data(levels)).mark_rule(strokeDash=[6, 3]).encode(
         y=_q("v", y_title, channel="y", pad=True), color=colour)
     words = alt.Chart(_data(levels)).mark_text(
         align="right", baseline="bottom", dx=-4, dy=-2, fontSize=10, fontWeight="bold",
         color=LIMIT).encode(x=alt.value("width"), y=_q("v", y_title, channel="y", pad=True),
-                            text="text:N")
+                            text=alt.Text("text:N"))
     layers = [band, rules, words]
     if vdd_label:
         layers.append(alt.Chart(_data(vdd_rows))
@@ -846,7 +862,7 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
                           y=_q("v", y_title, channel="y", pad=True), color=colour))
     layers.append(alt.Chart(_data(rows)).mark_line(strokeWidth=1.8).encode(
         x=_q("t", x_title), y=_q("v", y_title, channel="y", pad=True), color=colour,
-        detail="series:N"))
+        detail=alt.Detail("series:N")))
     return _titled(alt.layer(*layers), title, subtitle, width, height)
 
 
@@ -961,7 +977,7 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
     layers = [alt.Chart(_data(bars)).mark_bar(
         height=bar_h, yOffset=drop, stroke="white", strokeWidth=1).encode(
         x=alt.X("t:Q", stack="zero", axis=_axis(x_title), scale=x_pad), y=y, color=colour,
-        order="order:Q",
+        order=alt.Order("order:Q"),
         tooltip=[alt.Tooltip("path:N"), alt.Tooltip("series:N", title="component"),
                  alt.Tooltip("t:Q", title=x_title)])]
     if ticks:
@@ -970,19 +986,19 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
             x=alt.X("t:Q", axis=_axis(x_title), scale=x_pad), y=y, color=colour))
     layers.append(alt.Chart(_data(names)).mark_text(
         align="left", baseline="bottom", dx=2, dy=above, fontSize=11, color=INK).encode(
-        x=alt.value(0), y=y, text="path:N"))
+        x=alt.value(0), y=y, text=alt.Text("path:N")))
     if notes:
         layers.append(alt.Chart(_data(notes)).mark_text(
             align="right", baseline="bottom", dx=-2, dy=above, fontSize=11,
             fontWeight="bold").encode(
-            x=alt.value("width"), y=y, text="text:N", color=colour))
+            x=alt.value("width"), y=y, text=alt.Text("text:N"), color=colour))
     return _titled(alt.layer(*layers), title, subtitle, width, plot_h)
 
 
 def histogram(samples, *, limit=None, unit: str, label: str, limit_kind: str = "max",
               bins: int = 40, title: str | None = None, subtitle: str | None = None,
               count_label: str = "Samples per bin (count)",
-              width: int = _WIDTH, height: int = _HEIGHT) -> alt.LayerChart:
+              width: int = _WIDTH, height: int = _HEIGHT, binned=None) -> alt.LayerChart:
     """Histogram of Monte Carlo samples of one figure, with its limit.
 
     Parameters
@@ -1010,6 +1026,13 @@ def histogram(samples, *, limit=None, unit: str, label: str, limit_kind: str = "
         Width of the whole chart, axes and legend included. [px]
     height : int, optional
         Height of the plot. [px]
+    binned : (float, array_like, array_like), optional
+        Samples already counted, instead of ``samples`` (which may then be None):
+        ``(w, k, count)``, bin ``k`` holding the samples in ``[limit + k·w,
+        limit + (k + 1)·w)`` (a run too long to keep every sample, e.g.
+        :class:`pinlib.studies.whatif.MarginHistogram`); needs ``limit`` and
+        ``limit_kind="min"``.  Adjacent bins are merged to about ``bins`` bars, still
+        aligned on the limit. [unit], [1], [1]
 
     Returns
     -------
@@ -1023,7 +1046,11 @@ def histogram(samples, *, limit=None, unit: str, label: str, limit_kind: str = "
     and passes when ``a >= limit`` — the same comparison as the check, so the pass bars
     hold exactly the samples that pass.
     """
-    alt = _alt()
+    if binned is not None:
+        return _histogram_binned(binned, limit=limit, unit=unit, label=label,
+                                 limit_kind=limit_kind, bins=bins, title=title,
+                                 subtitle=subtitle, count_label=count_label, width=width,
+                                 height=height)
     s = _array(samples, "samples", ndim=(1, 2)).ravel()
     s = s[np.isfinite(s)]
     if s.size == 0:
@@ -1062,8 +1089,46 @@ def histogram(samples, *, limit=None, unit: str, label: str, limit_kind: str = "
         ok = (k_lo + 1 <= 0) if limit_kind == "max" else (k_lo >= 0)
         status = np.where(ok, "pass", "fail").astype(object)
     counts = np.bincount(idx, minlength=edges.size - 1)
+    return _histogram_bars(edges, counts, status, lim, unit=unit, label=label,
+                           limit_kind=limit_kind, title=title, subtitle=subtitle,
+                           count_label=count_label, width=width, height=height,
+                           scale_with=s[[0]])
 
-    fx, ux = display_scale(np.append(edges, s[[0]]), unit)
+
+def _histogram_binned(binned, *, limit, unit, label, limit_kind, bins, title, subtitle,
+                      count_label, width, height):
+    """:func:`histogram` of counts already binned on the limit."""
+    if limit is None or limit_kind != "min":
+        raise InputError(M.UNKNOWN_LIMIT_KIND, field="limit_kind", value=limit_kind,
+                         expected="'min' and a limit, for counted bins")
+    lim = _scalar(limit, "limit")
+    w = _scalar(binned[0], "binned width")
+    k = np.asarray(binned[1], dtype=np.int64).ravel()
+    got = np.asarray(binned[2], dtype=np.int64).ravel()
+    if not (w > 0 and k.size and k.size == got.size and got.sum() > 0):
+        raise InputError(M.NO_FINITE_SAMPLE, field="binned", expected="counted samples")
+    n = int(bins)
+    if n < 1:
+        raise InputError(M.TOO_FEW_BINS, field="bins", value=bins, expected="at least 1")
+    # the limit's own bin boundary (k = 0) stays in view, as with samples
+    lo, hi = min(int(k.min()), 0), max(int(k.max()) + 1, 0)
+    g = max(1, math.ceil((hi - lo) / n))
+    kk = np.floor_divide(k, g)
+    k_lo = np.arange(min(int(kk.min()), lo // g), max(int(kk.max()) + 1, -(-hi // g)))
+    counts = np.zeros(k_lo.size, dtype=np.int64)
+    np.add.at(counts, kk - k_lo[0], got)
+    edges = lim + g * w * np.append(k_lo, k_lo[-1] + 1)
+    status = np.where(k_lo >= 0, "pass", "fail").astype(object)
+    return _histogram_bars(edges, counts, status, lim, unit=unit, label=label,
+                           limit_kind=limit_kind, title=title, subtitle=subtitle,
+                           count_label=count_label, width=width, height=height,
+                           scale_with=edges[:1])
+
+
+def _histogram_bars(edges, counts, status, lim, *, unit, label, limit_kind, title, subtitle,
+                    count_label, width, height, scale_with):
+    alt = _alt()
+    fx, ux = display_scale(np.append(edges, scale_with), unit)
     x_title = _title(label, ux)
     if lim is None:
         domain, colours = ["samples"], [REGION]
@@ -1077,9 +1142,9 @@ def histogram(samples, *, limit=None, unit: str, label: str, limit_kind: str = "
              "z": 0, "series": str(status[i])} for i in range(counts.size)]
     layers = [alt.Chart(_data(bars)).mark_rect(
         opacity=0.85, stroke="white", strokeWidth=0.5).encode(
-        x=alt.X("a:Q", axis=_axis(x_title), scale=x_scale), x2="b:Q",
+        x=alt.X("a:Q", axis=_axis(x_title), scale=x_scale), x2=alt.X2("b:Q"),
         y=alt.Y("n:Q", axis=alt.Axis(title=count_label, format="~s", labelOverlap=True)),
-        y2="z:Q",
+        y2=alt.Y2("z:Q"),
         color=colour,
         tooltip=[alt.Tooltip("a:Q", title="from"), alt.Tooltip("b:Q", title="to"),
                  alt.Tooltip("n:Q", title="samples")])]
@@ -1112,7 +1177,7 @@ def spec(build: Callable[..., object], *args, **kwargs) -> dict:
     dict
         The specification, data values inline in each layer.
     """
-    from altair.utils import schemapi
+    schemapi = _alt().utils.schemapi  # altair imported the light way (see _alt)
 
     held: list = []
     pending: list = []
@@ -1136,7 +1201,7 @@ def spec(build: Callable[..., object], *args, **kwargs) -> dict:
 
 def _vl_version() -> str | None:
     """The Vega-Lite version altair writes, as vl_convert names it (``"6.4"``)."""
-    import altair as alt
+    alt = _alt()
     import vl_convert
 
     wanted = ".".join(alt.SCHEMA_VERSION.lstrip("v").split(".")[:2])

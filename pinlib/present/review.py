@@ -210,13 +210,14 @@ class _Keys:
 def _draw(key, kind, title, caption, make) -> ReviewChart:
     """Build a chart; an input the chart refuses becomes a chart with an error, so one
     undrawable figure does not lose the whole report."""
+    from pinlib.present.charts import spec as chart_spec
     from pinlib.present.charts import to_svg
 
     try:
-        chart = make()
-        # The charts module builds valid specs (its own tests validate them); skipping
-        # altair's schema validation here saves most of the report's time.
-        spec = chart.to_dict(validate=False) if hasattr(chart, "to_dict") else chart
+        # The charts module builds valid specs (its own tests validate them): spec()
+        # builds the chart without altair's schema checks (its debug mode, most of a
+        # report's chart time) and without handing it the data rows to copy.
+        spec = chart_spec(make)
         svg = to_svg(spec)
     except PinlibError as err:
         return ReviewChart(key, kind, title, caption, None, err.message)
@@ -395,7 +396,12 @@ def _mc_rows(mc) -> list[dict]:
                 "varies": bool(_get(entry, "varies", True)),
                 "failures": passes.passes < passes.n, "lowest": lowest,
                 "sensitivity": list(_get(entry, "sensitivity", []) or [])[:3],
-                "source": _get(entry, "source", "") or ""})
+                "source": _get(entry, "source", "") or "",
+                # a long run keeps the margins of its first boards only, and counts
+                # every board's in bins
+                "of": None if samples is None or samples.size >= passes.n else passes.n,
+                "binned": None if samples is None or samples.size >= passes.n
+                or _get(entry, "histogram") is None else entry.histogram.bins()})
             continue
         samples = _get(entry, "samples")
         if samples is None:
@@ -444,13 +450,16 @@ def _mc_charts(mc, keys) -> tuple[list, list]:
         title = f"Monte Carlo: {r['where']}"
         limit = "margin 0 (the limit itself)" if r["unit"] == "%" and r["limit"] == 0.0 \
             else "the check's limit"
-        caption = (f"{r['label']} on every sampled board. Bars in the pass colour hold boards "
+        boards = ("every sampled board" if not r.get("of") or r.get("binned") is not None
+                  else f"the first {r['samples'].size:,} of the {r['of']:,} sampled boards")
+        caption = (f"{r['label']} on {boards}. Bars in the pass colour hold boards "
                    f"that pass, in the fail colour boards that fail; the dashed line is "
                    f"{limit}.")
         out.append(_draw(keys("mc", r["where"]), "histogram", title, caption,
                          lambda r=r, t=title, sub=sub: ch.histogram(
                              r["samples"], limit=r["limit"], unit=r["unit"], label=r["label"],
-                             limit_kind=r["kind"], title=t, subtitle=sub)))
+                             limit_kind=r["kind"], title=t, subtitle=sub,
+                             binned=r.get("binned"))))
     return out, shown
 
 

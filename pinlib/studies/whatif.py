@@ -25,8 +25,16 @@ is ``k·Rp·Cb`` with its own Rp and Cb, and so on.  The stored part values (max
 pin capacitance, worst thresholds) stay what they are: they are limits, not spreads.
 
 Everything is vectorized: a batch of boards goes through
-:func:`pinlib.buses.odbatch.build` in one numpy pass (in chunks, for the progress
-bar).  Push-pull buses (SPI, GPIO) go through :func:`pinlib.buses.ppbatch.build`:
+:func:`pinlib.buses.odbatch.build` in one numpy pass, :data:`CHUNK` boards at a time.
+A run keeps what it reports, not every board: per check the counts of passing,
+warning and failing boards, the lowest and highest margin (and the worst board), a
+histogram of the margins in fixed bins (:class:`MarginHistogram`), and per bus and for
+the board the boards on which every check passes; the draws, margins and values of
+the first :data:`SENSITIVITY_BOARDS` boards are kept for the sensitivity fit and the
+margin quantiles.  Memory so stays bounded (about 0.4 GB for 10^6 boards of the demo),
+and the boards are drawn from one stream in board order, so that no result depends
+on the chunk size; a run of at most :data:`SENSITIVITY_BOARDS` boards keeps every
+board as before.  Push-pull buses (SPI, GPIO) go through :func:`pinlib.buses.ppbatch.build`:
 supplies, line lengths and extra line capacitance drawn; a large batch is evaluated from
 tables of the push-pull engine over the tolerance box, verified against the engine
 (:mod:`pinlib.buses.pptable`), a small one (and every corner) by the engine itself.
@@ -60,12 +68,15 @@ from pinlib.model.design import Bus, Design, Segment
 __all__ = [
     "CONFIDENCE",
     "CHUNK",
+    "MAX_BOARDS",
+    "SENSITIVITY_BOARDS",
     "EXHAUSTIVE_LIMIT",
     "Parameter",
     "parameters",
     "Sampled",
     "draw",
     "wilson_interval",
+    "MarginHistogram",
     "McCheck",
     "Yield",
     "McResult",
@@ -82,6 +93,10 @@ CONFIDENCE = 0.95
 #: whether a progress bar is shown).
 CHUNK = 25_000
 
+#: A run draws at most this many boards: beyond it, the counts are better had from
+#: several runs (seeds) added up than from one that takes hours.
+MAX_BOARDS = 100_000_000
+
 #: Up to this many parameters on a bus, corners tries every vertex (2**k).
 EXHAUSTIVE_LIMIT = 12
 
@@ -90,7 +105,9 @@ SENSITIVITY_FLOOR = 0.05
 
 #: Sensitivities are fitted on at most this many boards (the first drawn): the standard
 #: error of a standardized coefficient is then about 1/sqrt(100,000) = 0.003, far below
-#: SENSITIVITY_FLOOR, and a run of millions of boards does not fit them on all.
+#: SENSITIVITY_FLOOR, and a run of millions of boards does not fit them on all.  The
+#: draws, margins and values of these first boards are all a run keeps of each board
+#: (:attr:`McResult.draws`, :attr:`McCheck.margins`); the counts cover every board.
 SENSITIVITY_BOARDS = 100_000
 
 #: Smallest factor a parameter may take (a 100 % tolerance must not give 0 Ω or 0 V).
@@ -453,6 +470,64 @@ class Yield:
                 "interval": list(self.interval)}
 
 
+class MarginHistogram:
+    """Counts of relative margins in fixed bins aligned on 0 (the limit), filled chunk by
+    chunk: bin ``k`` holds the margins in ``[k·width, (k + 1)·width)``, so a bin lies
+    wholly on one side of the limit (``k >= 0``: the boards pass).
+
+    The width is set from the first margins that spread (a :data:`FINE_BINS`-th of their
+    range, the limit included); when later margins would need more than
+    :data:`MAX_BINS` bins, the width doubles and pairs of bins merge (still aligned on
+    0).  Non-finite margins are left out.
+    """
+
+    FINE_BINS = 400
+    MAX_BINS = 4000
+
+    def __init__(self):
+        self.width: float | None = None
+        self.counts: dict[int, int] = {}
+        self._pending: list[float] = []   # equal margins seen before any spread
+
+    def add(self, mg: np.ndarray) -> None:
+        x = mg[np.isfinite(mg)]
+        if not x.size:
+            return
+        if self.width is None:
+            lo, hi = min(float(x.min()), 0.0), max(float(x.max()), 0.0)
+            if hi <= lo:
+                self._pending.append(float(x.size))   # all 0: counted once a width is set
+                return
+            self.width = (hi - lo) / self.FINE_BINS
+            if self._pending:
+                self.counts[0] = int(sum(self._pending))
+                self._pending = []
+        k = np.floor(x / self.width).astype(np.int64)
+        while int(max(k.max(), max(self.counts, default=0))) - int(
+                min(k.min(), min(self.counts, default=0))) >= self.MAX_BINS:
+            self.width *= 2.0
+            k = np.floor_divide(k, 2)
+            merged: dict[int, int] = {}
+            for b, c in self.counts.items():
+                merged[b // 2] = merged.get(b // 2, 0) + c
+            self.counts = merged
+        bins, got = np.unique(k, return_counts=True)
+        for b, c in zip(bins.tolist(), got.tolist(), strict=True):
+            self.counts[b] = self.counts.get(b, 0) + c
+
+    @property
+    def total(self) -> int:
+        return sum(self.counts.values()) + int(sum(self._pending))
+
+    def bins(self) -> tuple[float, np.ndarray, np.ndarray] | None:
+        """``(width, k, count)`` of the bins from the lowest to the highest filled one
+        (empty ones between included); None while no margin has spread."""
+        if self.width is None or not self.counts:
+            return None
+        k = np.arange(min(self.counts), max(self.counts) + 1)
+        return self.width, k, np.array([self.counts.get(int(b), 0) for b in k], dtype=np.int64)
+
+
 @dataclass
 class McCheck:
     """One check over the drawn boards.
@@ -462,7 +537,8 @@ class McCheck:
     name : str
         ``"<bus>[/<segment>] [SDA|SCL] <check id> [<subject>]"``. [1]
     margins, values : numpy.ndarray
-        Each board's margin and value (None for a yes/no check). [1], [unit]
+        The margin and value of each of the first :attr:`sampled` boards (None for a
+        yes/no check). [1], [unit]
     passes : Yield
         Boards whose margin is not negative.
     sensitivity : list of (str, float)
@@ -470,6 +546,17 @@ class McCheck:
         first, those of at least :data:`SENSITIVITY_FLOOR`). [1]
     r2 : float or None
         How much of the margin's variance the linear fit explains. [1]
+    warns, fails : int or None
+        Boards on which the check warns, fails (of all ``passes.n``). [1]
+    low, high : float or None
+        Lowest and highest finite margin over all boards. [1]
+    worst_board : int or None
+        Index (in drawing order) of the board with the lowest margin. [1]
+    sampled : int or None
+        How many boards :attr:`margins` and :attr:`values` hold: all of them up to
+        :data:`SENSITIVITY_BOARDS`, then the first that many. [1]
+    histogram : MarginHistogram or None
+        The finite margins of every board, counted in fine bins. [1]
     """
 
     name: str
@@ -486,19 +573,39 @@ class McCheck:
     values: np.ndarray | None = None
     sensitivity: list = field(default_factory=list)
     r2: float | None = None
+    warns: int | None = None
+    fails: int | None = None
+    low: float | None = None
+    high: float | None = None
+    worst_board: int | None = None
+    sampled: int | None = None
+    histogram: MarginHistogram | None = None
+
+    @property
+    def complete(self) -> bool:
+        """Whether :attr:`margins` holds every board of the run."""
+        return self.sampled is None or self.sampled >= self.passes.n
 
     @property
     def varies(self) -> bool:
         if self.margins is None:
             return False
+        if not self.complete:
+            return self.low is not None and self.high is not None and self.high > self.low
         m = self.margins[np.isfinite(self.margins)]
         return bool(m.size) and bool(m.max() > m.min())
 
     def margin_quantiles(self, qs=(0.0, 0.01, 0.5)) -> list[float | None]:
+        """Quantiles of the finite margins: of every board when :attr:`margins` holds
+        them all; else the lowest (``q = 0``) of every board, the others of the first
+        :attr:`sampled` boards."""
         if self.margins is None:
             return [None] * len(qs)
         m = self.margins[np.isfinite(self.margins)]
-        return [float(np.quantile(m, q)) if m.size else None for q in qs]
+        if self.complete:
+            return [float(np.quantile(m, q)) if m.size else None for q in qs]
+        return [self.low if q == 0 else float(np.quantile(m, q)) if m.size else None
+                for q in qs]
 
     def to_json(self) -> dict:
         q = self.margin_quantiles()
@@ -677,14 +784,22 @@ def _sensitivities(u: np.ndarray, columns: list, params: list[Parameter]) -> lis
         for i, r in zip(whole, fit(z, np.stack([columns[i] for i in whole], axis=1)), strict=True):
             if r is not None:
                 out[i] = r
+    # a margin with non-finite boards is fitted on its finite ones; margins finite on the
+    # same boards share one fit (one Gram matrix: most of the time of a fit)
+    groups: dict[bytes, tuple[np.ndarray, list[int]]] = {}
+    done = set(whole)
     for i, c in enumerate(columns):
-        if c is None or i in whole:
+        if c is None or i in done:
             continue
         ok = np.isfinite(c)
         if ok.sum() > 2:
-            zz = z[ok]
-            zz = (zz - zz.mean(axis=0))
-            r = fit(zz, c[ok][:, None])[0]
+            groups.setdefault(np.packbits(ok).tobytes(),
+                              (ok, []))[1].append(i)
+    for ok, cols in groups.values():
+        zz = z[ok]
+        zz = (zz - zz.mean(axis=0))
+        for i, r in zip(cols, fit(zz, np.stack([columns[i][ok] for i in cols], axis=1)),
+                        strict=True):
             if r is not None:
                 out[i] = r
     return out
@@ -726,6 +841,10 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
     n = int(n)
     if n < 1:
         raise InputError(M.TOO_FEW_SAMPLES, field="monte-carlo", value=n, expected="at least 1")
+    if n > MAX_BOARDS:
+        raise InputError(M.TOO_MANY_SAMPLES, field="monte-carlo", value=n,
+                         expected=f"at most {MAX_BOARDS:,} boards",
+                         hint="split the run over several seeds and add the counts")
     if chunk < 1:
         raise InputError(M.CHUNK_NOT_POSITIVE, field="chunk", value=chunk)
     nominal = _nominal(design)
@@ -733,8 +852,10 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
     params = parameters(design, collected=collected)
     ss = np.random.SeedSequence(seed)
     rng = np.random.default_rng(ss)
-    u_all = np.empty((n, len(params)))
-    stores: dict[str, dict] = {}
+    kept = min(n, SENSITIVITY_BOARDS)       # boards whose draws and margins are kept
+    u_kept = np.empty((kept, len(params)))
+    stores: dict[str, _Tally] = {}
+    board_ok = 0
     # Push-pull buses: one table per bus for the whole run (pinlib.buses.pptable); a
     # normal draw is covered to 4σ (4/3 of the tolerance), boards beyond by the engine.
     tables: dict = {}
@@ -744,13 +865,22 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
     # the tables get a bar of their own; a caller's callback follows the boards only
     table_progress = False if callable(progress) and not isinstance(progress, bool) \
         else progress
+    for bus in design.buses:
+        if bus.protocol in ppb.PROTOCOLS:
+            # whether a table pays is decided once, for all n boards (not per chunk)
+            ppb.prepare_table(bus, design, nominal[bus.id], tables, span, _FLOOR, n,
+                              progress=table_progress)
     bar = progress_bar(n, desc="Monte Carlo", unit="board", enabled=progress)
     with bar:
         for start in range(0, n, chunk):
             m = min(chunk, n - start)
+            # one stream for the run, drawn in board order: board i's draws do not
+            # depend on the chunk size
             u = draw(rng, m, len(params), design.distribution)
-            u_all[start:start + m] = u
+            if start < kept:
+                u_kept[start:start + m] = u[:kept - start]
             scen = Sampled(u, params)
+            chunk_ok = None
             for bus in design.buses:
                 if bus.protocol in ppb.PROTOCOLS:
                     bb = ppb.build(bus, design, scen.factors(bus), m, nominal=nominal[bus.id],
@@ -766,48 +896,34 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
                     continue
                 st = stores.get(bus.id)
                 if st is None:
-                    st = stores[bus.id] = {
-                        "names": _names(bus, bb, nominal[bus.id]),
-                        "checks": [c for _, c in bb.checks()],
-                        "margin": [None if c.margin is None else np.empty(n)
-                                   for _, c in bb.checks()],
-                        "value": [None if c.value is None else np.empty(n)
-                                  for _, c in bb.checks()],
-                        "fail": [np.empty(n, dtype=bool) for _ in bb.checks()]}
-                for i, (_, c) in enumerate(bb.checks()):
-                    if c.margin is not None:
-                        st["margin"][i][start:start + m] = c.margin
-                    if c.value is not None:
-                        st["value"][i][start:start + m] = c.value
-                    st["fail"][i][start:start + m] = c.status == 2
+                    st = stores[bus.id] = _Tally(_names(bus, bb, nominal[bus.id]), bb, kept)
+                ok = st.add(bb, start, m)
+                chunk_ok = ok if chunk_ok is None else chunk_ok & ok
+                del bb
+            if chunk_ok is not None:
+                board_ok += int(np.count_nonzero(chunk_ok))
+            del scen, u
             bar.update(m)
     checks, buses = [], {}
-    all_ok = np.ones(n, dtype=bool) if stores else None
     for bus in design.buses:
         st = stores.get(bus.id)
         if st is None:
             continue
-        bus_ok = np.ones(n, dtype=bool)
-        k_fit = min(n, SENSITIVITY_BOARDS)
-        fits = _sensitivities(u_all[:k_fit], [None if c is None else c[:k_fit]
-                                              for c in st["margin"]], params)
-        for name, c, mg, val, fail, (sens, r2) in zip(st["names"], st["checks"], st["margin"],
-                                                      st["value"], st["fail"], fits, strict=True):
-            bus_ok &= ~fail
-            passes = int(n - np.count_nonzero(fail))
+        fits = _sensitivities(u_kept, st.margin, params)
+        for j, (name, (signal, cid, unit), mg, val, (sens, r2)) in enumerate(zip(
+                st.names, st.meta, st.margin, st.value, fits, strict=True)):
+            passes = int(n - st.fails[j])
             ec = name["engine"]
             checks.append(McCheck(
-                name["name"], bus.id, name["segment"], c.signal, c.id, c.unit,
+                name["name"], bus.id, name["segment"], signal, cid, unit,
                 ec.source if ec is not None else "", ec.status if ec is not None else None,
                 ec.margin if ec is not None else None,
-                Yield(passes, n, wilson_interval(passes, n)), mg, val, sens, r2))
-        k = int(np.count_nonzero(bus_ok))
-        buses[bus.id] = Yield(k, n, wilson_interval(k, n))
-        all_ok &= bus_ok
-    board = None
-    if all_ok is not None:
-        k = int(np.count_nonzero(all_ok))
-        board = Yield(k, n, wilson_interval(k, n))
+                Yield(passes, n, wilson_interval(passes, n)), mg, val, sens, r2,
+                warns=int(st.warns[j]), fails=int(st.fails[j]),
+                low=st.extreme(j, 0), high=st.extreme(j, 1), worst_board=st.worst_board(j),
+                sampled=kept, histogram=st.hist[j]))
+        buses[bus.id] = Yield(st.bus_ok, n, wilson_interval(st.bus_ok, n))
+    board = Yield(board_ok, n, wilson_interval(board_ok, n)) if stores else None
     notes = _not_sampled(design) + pp_notes
     for bus_id, k in engine_boards.items():
         if k and not isinstance(tables.get(bus_id, ""), str):
@@ -816,9 +932,76 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
     if design.distribution == "normal":
         notes.append("normal draws: each tolerance is 3σ (a value may lie beyond it)")
     if n > SENSITIVITY_BOARDS and stores:
-        notes.append(f"sensitivities fitted on the first {SENSITIVITY_BOARDS:,} boards")
+        notes.append(f"sensitivities, margin quantiles and histograms from the first "
+                     f"{SENSITIVITY_BOARDS:,} boards; pass counts and lowest margins from all")
     return McResult(design.title, n, int(ss.entropy), design.distribution, params, checks, buses,
-                    board, u_all, notes)
+                    board, u_kept, notes)
+
+
+class _Tally:
+    """What a Monte Carlo run keeps of one bus's checks while its chunks go by: counts of
+    failing and warning boards, boards on which every check passes, each margin's lowest
+    and highest finite value with the board it came from, and the margins and values of
+    the first ``kept`` boards (the sample of the sensitivity fit)."""
+
+    def __init__(self, names, bb, kept: int):
+        items = [c for _, c in bb.checks()]
+        self.names = names
+        self.meta = [(c.signal, c.id, c.unit) for c in items]
+        k = len(items)
+        self.kept = kept
+        self.margin = [None if c.margin is None else np.empty(kept) for c in items]
+        self.value = [None if c.value is None else np.empty(kept) for c in items]
+        self.fails = np.zeros(k, dtype=np.int64)
+        self.warns = np.zeros(k, dtype=np.int64)
+        self.bus_ok = 0
+        # per check: lowest and highest finite margin, and the boards they came from
+        self.ext = np.full((k, 2), np.nan)
+        self.at = np.full((k, 2), -1, dtype=np.int64)
+        self.hist = [None if c.margin is None else MarginHistogram() for c in items]
+
+    def add(self, bb, start: int, m: int) -> np.ndarray:
+        """Count one chunk of boards ``start .. start + m``; its boards where every check
+        passes."""
+        ok = np.ones(m, dtype=bool)
+        take = max(0, min(m, self.kept - start))
+        for j, (_, c) in enumerate(bb.checks()):
+            fail = c.status == 2
+            ok &= ~fail
+            self.fails[j] += int(np.count_nonzero(fail))
+            self.warns[j] += int(np.count_nonzero(c.status == 1))
+            if take:
+                if c.margin is not None:
+                    self.margin[j][start:start + take] = c.margin[:take]
+                if c.value is not None:
+                    self.value[j][start:start + take] = c.value[:take]
+            if c.margin is not None:
+                mg = np.asarray(c.margin, dtype=float).reshape(m)
+                self._extremes(j, mg, start)
+                self.hist[j].add(mg)
+        self.bus_ok += int(np.count_nonzero(ok))
+        return ok
+
+    def _extremes(self, j: int, mg: np.ndarray, start: int) -> None:
+        finite = np.isfinite(mg)
+        if not finite.any():
+            return
+        key = np.where(finite, mg, np.inf)
+        i = int(np.argmin(key))
+        if np.isnan(self.ext[j, 0]) or mg[i] < self.ext[j, 0]:
+            self.ext[j, 0], self.at[j, 0] = mg[i], start + i
+        key = np.where(finite, mg, -np.inf)
+        i = int(np.argmax(key))
+        if np.isnan(self.ext[j, 1]) or mg[i] > self.ext[j, 1]:
+            self.ext[j, 1], self.at[j, 1] = mg[i], start + i
+
+    def extreme(self, j: int, which: int) -> float | None:
+        x = self.ext[j, which]
+        return None if np.isnan(x) else float(x)
+
+    def worst_board(self, j: int) -> int | None:
+        i = int(self.at[j, 0])
+        return None if i < 0 else i
 
 
 # ============================================================================ corners

@@ -113,4 +113,52 @@ def run(repeats: int = 3, quick: bool = False) -> list[Result]:
                       target=f"> {TARGET:,}/s", passed=rate > TARGET,
                       extra=[f"{n_spi:,} boards; {table or 'no table: every board by the engine'}"
                              " (pinlib.engines.pptable), the table's cost included"]))
+    out.append(_memory(N_MEMORY // 10 if quick else N_MEMORY))
     return out
+
+
+#: Boards of the memory benchmark, and its ceiling. [1], [MB]
+N_MEMORY = 1_000_000
+MEMORY_TARGET = 500
+
+_MEMORY_RUN = """
+import json, resource, time
+from pinlib.engines.dispatch import evaluate_bus
+from pinlib.model.design import load_design
+from pinlib.studies.whatif import monte_carlo
+design = load_design({demo!r})
+first = monte_carlo(design, 1000, seed=1)
+buses = [b for b in design.buses if b.id in {{c.bus for c in first.checks}}]
+t = time.perf_counter()
+for _ in range(3):
+    for bus in buses:
+        evaluate_bus(bus, design)
+one = (time.perf_counter() - t) / 3
+before = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
+t = time.perf_counter()
+monte_carlo(design, {n}, seed=1)
+took = time.perf_counter() - t
+peak = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
+print(json.dumps({{"before": before / 1024, "peak": peak / 1024, "took": took, "one": one}}))
+"""
+
+
+def _memory(n: int) -> Result:
+    """Peak memory of a Monte Carlo run of the whole demo, in a fresh process (its
+    resident set size, Linux ``ru_maxrss`` in KiB), against the same process before the
+    run (design loaded, a small run done, every module imported)."""
+    import json
+    import subprocess
+    import sys
+
+    root = Path(__file__).resolve().parents[2]
+    proc = subprocess.run([sys.executable, "-c", _MEMORY_RUN.format(demo=str(DEMO), n=n)],
+                          cwd=root, capture_output=True, text=True, check=True)
+    got = json.loads(proc.stdout.strip().splitlines()[-1])
+    rate = n / got["took"]
+    return Result(f"Monte Carlo: demo, {n:,} boards, memory", got["peak"],
+                  "before the run", got["before"], got["peak"] / got["before"],
+                  "of the process before the run", unit="MB",
+                  target=f"< {MEMORY_TARGET} MB peak", passed=got["peak"] < MEMORY_TARGET,
+                  extra=[f"{rate:,.0f} boards/s, {rate * got['one']:,.0f} boards per engine "
+                         "check of one board (every sampled bus)"])
