@@ -13,6 +13,7 @@ import importlib
 import sys
 
 from pinlib import __version__
+from pinlib.cli.startup import pydantic_plugins_off
 from pinlib.core.errors import PinlibError
 
 __all__ = ["main", "COMMANDS"]
@@ -52,6 +53,11 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def main(argv: list[str] | None = None) -> int:
+    with pydantic_plugins_off():  # pinlib.cli.startup: why, and how a user keeps them
+        return _main(argv)
+
+
+def _main(argv: list[str] | None) -> int:
     parser = build_parser()
     args = parser.parse_args(argv)
     if not getattr(args, "run", None):

@@ -203,6 +203,7 @@ def run(args) -> int:
     import time
     from urllib.parse import quote
 
+    from pinlib.cli.startup import child_environment
     from pinlib.core import extras
 
     folder = workbook_folder(args.folder)
@@ -215,7 +216,7 @@ def run(args) -> int:
     proc = None
     stopped = False
     data = Path(tempfile.mkdtemp(prefix="pinlib-workbench-"))
-    env = dict(os.environ)
+    env = child_environment()  # the user's, without what this command set for itself
     env["JUPYTER_PATH"] = os.pathsep.join(
         [str(write_template(data))] + ([env["JUPYTER_PATH"]] if env.get("JUPYTER_PATH")
                                        else []))
