@@ -14,11 +14,13 @@ the first run, with an empty store, is reported beside them.
 from __future__ import annotations
 
 import os
+import statistics
 import subprocess
 import sys
+import time
 from pathlib import Path
 
-from tests.bench.common import Result, median_time
+from tests.bench.common import Result
 
 __all__ = ["run", "DEMO"]
 
@@ -62,15 +64,32 @@ def heavy_imports() -> list[str]:
     return proc.stderr.strip().splitlines()[-1].split() if proc.stderr.strip() else []
 
 
+def _interleaved(funcs, repeats: int) -> list[float]:
+    """Median wall time of each of ``funcs``, run in turn ``repeats`` times after one
+    warm-up round. [s]"""
+    times: list[list[float]] = [[] for _ in funcs]
+    for round_ in range(repeats + 1):
+        for func, kept in zip(funcs, times, strict=True):
+            start = time.perf_counter()
+            func()
+            if round_:
+                kept.append(time.perf_counter() - start)
+    return [statistics.median(t) for t in times]
+
+
 def run(repeats: int = 7, quick: bool = False) -> list[Result]:
     import tempfile
 
     cmd = _command() + ["check", str(DEMO)]
     with tempfile.TemporaryDirectory(prefix="pinlib-bench-fits-") as warm:
-        t_check = median_time(lambda: _run(cmd, warm), repeats)  # warm-up fills the store
-    t_cold = median_time(lambda: _run(cmd, "off"), repeats)
-    t_numpy = median_time(lambda: _run([sys.executable, "-c", "import numpy"]), repeats)
-    t_bare = median_time(lambda: _run([sys.executable, "-c", "pass"]), repeats)
+        # The runs take turns (check, numpy, bare, cold check, ...) so that the ratios
+        # compare runs made under the same load of the shared machine.
+        t_check, t_numpy, t_bare, t_cold = _interleaved([
+            lambda: _run(cmd, warm),  # its warm-up run fills the store
+            lambda: _run([sys.executable, "-c", "import numpy"]),
+            lambda: _run([sys.executable, "-c", "pass"]),
+            lambda: _run(cmd, "off"),
+        ], repeats)
     heavy = heavy_imports()
     ratio = t_check / t_numpy
     return [Result("pinlib check demo (fresh process)", t_check, "python -c 'import numpy'",
