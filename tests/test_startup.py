@@ -47,3 +47,13 @@ def test_restored_when_the_command_fails(monkeypatch):
     except SystemExit:
         pass
     assert VAR not in os.environ
+
+
+def test_the_program_returns_mains_code_and_freezes_what_is_left(monkeypatch):
+    import gc
+
+    froze = []
+    monkeypatch.setattr(cli, "main", lambda: 3)
+    monkeypatch.setattr(gc, "freeze", lambda: froze.append(True))
+    assert cli.entry() == 3
+    assert froze == [True]
