@@ -1,5 +1,5 @@
 import sys
 
-from pinlib.cli import main
+from pinlib.cli import entry
 
-sys.exit(main())
+sys.exit(entry())

@@ -12,6 +12,7 @@ from __future__ import annotations
 import os
 
 from pinlib.core.protocols import PROTOCOLS
+from pinlib.engines.memo import run_scope
 from pinlib.model.design import Bus, Design, load_design
 from pinlib.model.result import BusResult, DesignResult
 
@@ -61,8 +62,14 @@ def check_design(design: Design) -> DesignResult:
     -------
     DesignResult
         One :class:`~pinlib.model.result.BusResult` per bus, in file order.
+
+    Notes
+    -----
+    The buses are evaluated in one :func:`pinlib.engines.memo.run_scope`: a waveform
+    solved with identical inputs twice in the check is solved once.
     """
-    return design_result(design, [evaluate_bus(bus, design) for bus in design.buses])
+    with run_scope():
+        return design_result(design, [evaluate_bus(bus, design) for bus in design.buses])
 
 
 def design_result(design: Design, buses: list) -> DesignResult:

@@ -67,6 +67,7 @@ from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError
 from pinlib.core.protocols import protocol
 from pinlib.core.quantity import format_si
+from pinlib.engines import memo
 from pinlib.library.schema import Pin
 from pinlib.model.design import Bus, Device, Line, Section
 from pinlib.model.result import Check, LineResult, check_max, check_min
@@ -544,6 +545,23 @@ def simulate_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float,
     that would need more than :data:`MAX_TIME_STEPS` steps is refused with an
     InputError.
     """
+    key = ("pushline.unit_edge", tuple((s.z0, s.td, s.c) for s in stretches),
+           r_source, t_ramp, c_far, bool(distributed))
+    t, unit, settled = memo.remember(
+        key, lambda: _unit_edge(stretches, r_source, t_ramp, c_far, distributed))
+    swing = v_to - v_from
+    v = v_from + swing * unit
+    t_edge = float(wf.edge_time(t, v, v_to, v_initial=v_from))
+    hi, lo = max(v_from, v_to), min(v_from, v_to)
+    over = float(wf.overshoot(v, hi))
+    under = float(wf.undershoot(v, lo))
+    return EdgeWave(edge, t.copy(), v, v_from, v_to, t_edge, over, under, bool(settled))
+
+
+def _unit_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float, c_far: float,
+               distributed: bool) -> tuple[np.ndarray, np.ndarray, bool]:
+    """The time grid, the unit response (0 -> 1) at the far end and whether it settled,
+    for :func:`simulate_edge` (which the level of the edge only scales and shifts)."""
     c_line = sum(s.c for s in stretches)
     c_total = c_line + c_far
     tau = r_source * c_total
@@ -553,7 +571,6 @@ def simulate_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float,
     distributed = distributed and bool(sections)
     t_end = t_ramp + _SETTLE_TAUS * tau + (_SETTLE_DELAYS * sum(delays) if distributed else 0.0)
     t_end = max(t_end, 1e-12)
-    swing = v_to - v_from
     for _ in range(_MAX_EXTENSIONS + 1):
         limits = [t_end / _MIN_STEPS]
         if t_ramp > 0:
@@ -572,16 +589,11 @@ def simulate_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float,
                                            c_lumped_far).v
         else:
             unit = wf.lumped_response(t, 1.0, t_ramp, r_source, c_total).v
-        v = v_from + swing * unit
         settled = abs(unit[-1] - 1.0) <= _SETTLED
         if settled:
             break
         t_end *= 3.0
-    t_edge = float(wf.edge_time(t, v, v_to, v_initial=v_from))
-    hi, lo = max(v_from, v_to), min(v_from, v_to)
-    over = float(wf.overshoot(v, hi))
-    under = float(wf.undershoot(v, lo))
-    return EdgeWave(edge, t, v, v_from, v_to, t_edge, over, under, bool(settled))
+    return t, unit, bool(settled)
 
 
 @dataclass

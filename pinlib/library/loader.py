@@ -13,7 +13,6 @@ Every merged value remembers which part id set it.
 
 from __future__ import annotations
 
-import difflib
 import os
 from collections.abc import Iterable, Iterator, Mapping
 from dataclasses import dataclass, field
@@ -284,6 +283,8 @@ class Library:
         return len(self.parts)
 
     def closest(self, part_id: str, n: int = 3) -> list[str]:
+        import difflib  # only for an unknown id: not on a check's path
+
         return difflib.get_close_matches(part_id, list(self.parts), n=n, cutoff=0.4)
 
     def get(self, part_id: str, *, file=None, line=None, field=None) -> Part:
@@ -436,6 +437,8 @@ def _merged_raw(pid: str, files: dict[str, PartFile], stack: list[str]):
                            hint=f"{cycle}; files: " + ", ".join(
                                str(files[p].path) for p in stack + [pid] if p in files))
     if parent not in files:
+        import difflib
+
         near = difflib.get_close_matches(parent, list(files), n=3, cutoff=0.4)
         raise LibraryError(M.EXTENDS_UNKNOWN, file=str(pf.path),
                            line=pf.line(("extends",)), field="extends", value=parent,

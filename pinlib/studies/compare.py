@@ -41,6 +41,7 @@ from pinlib.library.loader import BUILTIN_DIR
 from pinlib.library.schema import Part
 from pinlib.library.values import Sourced
 from pinlib.model.result import FORMAT as RESULT_FORMAT
+from pinlib.studies.snapshotfile import snapshot_path
 
 __all__ = [
     "CHANGES_FORMAT",
@@ -83,21 +84,6 @@ _ARROW = "→"
 
 
 # ============================================================================ snapshots
-
-
-def snapshot_path(design_path) -> Path:
-    """Where a design's snapshot lives: ``<design>.result.json`` beside it.
-
-    ``boards/demo-board.toml`` -> ``boards/demo-board.result.json``.  A
-    :class:`~pinlib.model.design.Design` may be given instead of its path.
-    """
-    path = getattr(design_path, "path", design_path)
-    if path is None:
-        raise InputError(M.NO_SNAPSHOT_PLACE,
-                         field="design", expected="a design loaded with load_design(path)")
-    path = Path(path)
-    return path.with_name(path.stem + ".result.json") if path.suffix else \
-        path.with_name(path.name + ".result.json")
 
 
 def _now() -> str:

@@ -94,7 +94,7 @@ def seed_type(text):
 def run(args) -> int:
     from pinlib.engines.dispatch import check_design
     from pinlib.model.design import load_design
-    from pinlib.studies.compare import DEFAULT_THRESHOLD, compare_with_snapshot, save_snapshot
+    from pinlib.studies.snapshotfile import may_have_snapshot
 
     design = load_design(args.design, library_folders=args.library)
     if getattr(args, "seed", None) is not None and getattr(args, "monte_carlo", None) is None:
@@ -103,9 +103,14 @@ def run(args) -> int:
         raise InputError(M.SEED_WITHOUT_MONTE_CARLO, field="--seed", value=args.seed,
                          hint="add --monte-carlo N")
     result = check_design(design)
-    threshold = DEFAULT_THRESHOLD if args.threshold is None else args.threshold
-    # Compare before saving, or the run would compare with itself.
-    changes = compare_with_snapshot(design, result, threshold)
+    changes = None
+    # The snapshot code is imported only when there is a snapshot to compare or save.
+    if may_have_snapshot(design) or args.save:
+        from pinlib.studies.compare import DEFAULT_THRESHOLD, compare_with_snapshot
+
+        threshold = DEFAULT_THRESHOLD if args.threshold is None else args.threshold
+        # Compare before saving, or the run would compare with itself.
+        changes = compare_with_snapshot(design, result, threshold)
     extra = _what_if(design, args)
     if args.json:
         out = result.to_json()
@@ -124,6 +129,8 @@ def run(args) -> int:
         for value in extra.values():
             sys.stdout.write("\n" + value.format_text())
     if args.save:
+        from pinlib.studies.compare import save_snapshot
+
         print(f"saved {save_snapshot(design, result)}", file=sys.stderr)
     return result.exit_code()
 

@@ -15,22 +15,20 @@ from __future__ import annotations
 
 import argparse
 import contextlib
-import importlib.util
 import os
-import shutil
-import signal
-import socket
-import subprocess
 import sys
-import tempfile
-import time
-import urllib.error
-import urllib.request
 from pathlib import Path
-from urllib.parse import quote
+from typing import TYPE_CHECKING
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
+
+if TYPE_CHECKING:
+    import subprocess
+
+# The server's modules (sockets, subprocesses, HTTP, signals) are imported inside the
+# functions that use them: every ``pinlib`` command builds this command's parser, and
+# ``pinlib check`` should not pay for them.
 
 __all__ = ["add_parser", "run", "workbook_folder", "free_port", "DEFAULT_PORT", "HOST"]
 
@@ -94,6 +92,8 @@ def workbook_folder(folder: str | Path) -> Path:
 
 
 def _port_free(port: int) -> bool:
+    import socket
+
     with socket.socket(socket.AF_INET, socket.SOCK_STREAM) as s:
         try:
             s.bind((HOST, port))
@@ -159,6 +159,9 @@ def voila_command(folder: Path, port: int) -> list[str]:
 
 
 def _answers(url: str) -> bool:
+    import urllib.error
+    import urllib.request
+
     try:
         with urllib.request.urlopen(url, timeout=5) as r:
             return r.status == 200
@@ -176,6 +179,9 @@ def _raise_stop(signum, frame):
 
 def _stop(proc: subprocess.Popen, timeout: float = 15.0) -> None:
     """Stop the server (SIGTERM: it shuts its kernels down), then kill what is left."""
+    import signal
+    import subprocess
+
     if proc.poll() is None:
         proc.terminate()
         try:
@@ -189,6 +195,15 @@ def _stop(proc: subprocess.Popen, timeout: float = 15.0) -> None:
 
 
 def run(args) -> int:
+    import importlib.util
+    import shutil
+    import signal
+    import subprocess
+    import tempfile
+    import time
+    from urllib.parse import quote
+
+    from pinlib.cli.startup import child_environment
     from pinlib.core import extras
 
     folder = workbook_folder(args.folder)
@@ -201,7 +216,7 @@ def run(args) -> int:
     proc = None
     stopped = False
     data = Path(tempfile.mkdtemp(prefix="pinlib-workbench-"))
-    env = dict(os.environ)
+    env = child_environment()  # the user's, without what this command set for itself
     env["JUPYTER_PATH"] = os.pathsep.join(
         [str(write_template(data))] + ([env["JUPYTER_PATH"]] if env.get("JUPYTER_PATH")
                                        else []))

@@ -1,0 +1,59 @@
+"""pinlib.cli.startup: pydantic's plugin discovery is off while a command runs, a
+user's own setting wins, and neither the process nor its children keep the change."""
+
+from __future__ import annotations
+
+import os
+
+from pinlib import cli
+from pinlib.cli import startup
+
+VAR = startup.PLUGINS_VARIABLE
+
+
+def _seen_during_a_command(monkeypatch) -> list:
+    seen = []
+
+    def fake_main(argv):
+        seen.append((os.environ.get(VAR), startup.child_environment().get(VAR, "absent")))
+        return 0
+
+    monkeypatch.setattr(cli, "_main", fake_main)
+    assert cli.main(["check", "x.toml"]) == 0
+    return seen
+
+
+def test_discovery_off_during_a_command_and_restored_after(monkeypatch):
+    monkeypatch.delenv(VAR, raising=False)
+    assert _seen_during_a_command(monkeypatch) == [("__all__", "absent")]
+    assert VAR not in os.environ
+
+
+def test_a_users_setting_wins_and_reaches_children(monkeypatch):
+    monkeypatch.setenv(VAR, "")  # empty: every plugin stays on
+    assert _seen_during_a_command(monkeypatch) == [("", "")]
+    assert os.environ[VAR] == ""
+
+
+def test_restored_when_the_command_fails(monkeypatch):
+    monkeypatch.delenv(VAR, raising=False)
+
+    def failing(argv):
+        raise SystemExit(2)
+
+    monkeypatch.setattr(cli, "_main", failing)
+    try:
+        cli.main(["--no-such-option"])
+    except SystemExit:
+        pass
+    assert VAR not in os.environ
+
+
+def test_the_program_returns_mains_code_and_freezes_what_is_left(monkeypatch):
+    import gc
+
+    froze = []
+    monkeypatch.setattr(cli, "main", lambda: 3)
+    monkeypatch.setattr(gc, "freeze", lambda: froze.append(True))
+    assert cli.entry() == 3
+    assert froze == [True]
