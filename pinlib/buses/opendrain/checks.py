@@ -11,23 +11,23 @@ from __future__ import annotations
 
 import numpy as np
 
+from pinlib.buses.opendrain.bridges import bridge_checks
 from pinlib.buses.opendrain.explain import segment_figures, segment_notes, window_advice
 from pinlib.buses.opendrain.inputs import (
     _COMMON,
     _CORNERS,
     CLAMP_DROP,
-    GATE_OVERDRIVE,
     SIGNALS,
     LineInputs,
     SegmentInputs,
     _corner_values,
     _default,
     _f,
-    _offset_side,
     _taps,
     controller_of,
     delays,
     links,
+    worst_index,
 )
 from pinlib.physics import pullup as pu
 from pinlib.physics.rc import RISE_10_90
@@ -49,11 +49,6 @@ class Context:
 
     def kw(self, **extra):
         return {"warn_margin": self.warn, **extra}
-
-
-def _worst_index(margins: np.ndarray) -> int:
-    m = np.where(np.isnan(margins), -np.inf, margins)
-    return int(np.argmin(m))
 
 
 def _window_check(ctx: Context, seg_in: SegmentInputs, ln: LineInputs) -> Check:
@@ -207,7 +202,7 @@ def _low_level_checks(lc: _LineCtx, levels: list) -> list[Check]:
             rows = []
             for r in ln.receivers:
                 m = (r.v_il - vol_bus) / r.v_il
-                c = _worst_index(m)
+                c = worst_index(m)
                 rows.append((float(m[c]), c, r))
             rows.sort(key=lambda x: x[0])
             m, c, r = rows[0]
@@ -228,7 +223,7 @@ def _low_level_checks(lc: _LineCtx, levels: list) -> list[Check]:
             figs["noise_margin_low"] = float(np.min(nml))
             if lim.v_nl_rel is not None:
                 limit = lim.v_nl_rel * v
-                c = _worst_index((nml - limit) / limit)
+                c = worst_index((nml - limit) / limit)
                 checks_low.append(check_min(
                     "noise-margin-low", float(nml[c]), float(limit[c]), "V", lim.source_noise,
                     f"{up} low-level noise margin {_f(nml[c], 'V')} (lowest VIL − low level, "
@@ -289,7 +284,7 @@ def _high_level_checks(lc: _LineCtx) -> None:
         rows = []
         for r in ln.receivers:
             m = (voh - r.v_ih) / r.v_ih
-            c = _worst_index(m)
+            c = worst_index(m)
             rows.append((float(m[c]), c, r))
         rows.sort(key=lambda x: x[0])
         m, c, r = rows[0]
@@ -312,7 +307,7 @@ def _high_level_checks(lc: _LineCtx) -> None:
         figs["noise_margin_high"] = float(np.min(nmh))
         if lim.v_nh_rel is not None:
             limit = lim.v_nh_rel * v
-            c = _worst_index((nmh - limit) / limit)
+            c = worst_index((nmh - limit) / limit)
             grp.add(check_min("noise-margin-high", float(nmh[c]), float(limit[c]), "V",
                               lim.source_noise,
                               f"{up} high-level noise margin {_f(nmh[c], 'V')} (high level − "
@@ -376,7 +371,7 @@ def _segment_checks(ctx: Context, seg_in: SegmentInputs, grp: Group, per_line: d
     taps = [t for sig in SIGNALS for t in _taps(seg_in.segment, SIGNALS[sig])]
     _domain_checks(ctx, seg_in, grp, taps)
     _power_checks(seg_in, grp, taps)
-    _bridge_checks(ctx, seg_in, grp)
+    bridge_checks(ctx, seg_in, grp)
 
 
 def _timing_checks(ctx: Context, seg_in: SegmentInputs, grp: Group, per_line: dict) -> None:
@@ -470,7 +465,7 @@ def _domain_checks(ctx: Context, seg_in: SegmentInputs, grp: Group, taps: list) 
             continue
         am = _corner_values(t.pin.abs_max, t, v, vtol, "min")
         m = (am - v) / am
-        c = _worst_index(m)
+        c = worst_index(m)
         rows.append((float(m[c]), float(v[c]), float(am[c]), t))
     if rows:
         rows.sort(key=lambda x: x[0])
@@ -563,96 +558,6 @@ def _power_checks(seg_in: SegmentInputs, grp: Group, taps: list) -> None:
                    "while the bus runs, or isolate it behind a bus switch or buffer that "
                    "disconnects when its rail is off")
         chk.message += f"; fix: {chk.fix}"
-        grp.add(chk)
-
-
-def _bridge_checks(ctx: Context, seg_in: SegmentInputs, grp: Group) -> None:
-    v, vtol = seg_in.vdd, seg_in.vtol
-    seg = seg_in.segment
-    links = ctx.links[seg_in.index]
-    offsets = []
-    for link in links:
-        d = link.dev
-        if link.kind == "mosfet":
-            other = ctx.seg_ins[link.other]
-            if seg.supply > other.segment.supply:
-                continue  # the low side reports the gate drive
-            br = d.part.bridge
-            if br.v_gs_th is None:
-                grp.notes.append(f"{d.ref}: the translator's gate threshold (bridge.v_gs_th) is "
-                                 "not stated; gate drive not checked")
-            else:
-                vth = float(br.v_gs_th.value)
-                over = float(v[0]) - vth
-                # the transistor does not conduct at all without overdrive (limit 0 V, a
-                # fail); below GATE_OVERDRIVE it is a warning. The margin is relative to it.
-                margin = over / GATE_OVERDRIVE
-                status = "fail" if over <= 0 else ("warn" if over < GATE_OVERDRIVE else "pass")
-                msg = (f"{d.ref} gate drive: low rail {_f(v[0], 'V')} at its minimum − gate "
-                       f"threshold {_f(vth, 'V')} = {_f(over, 'V')} overdrive")
-                fix = None
-                if status != "pass":
-                    fix = ("a MOSFET with a lower gate threshold (logic-level, below "
-                           f"{_f(float(v[0]) - GATE_OVERDRIVE, 'V')}) or an active translator")
-                    msg += (f"; below {_f(GATE_OVERDRIVE, 'V')} its on-resistance "
-                            f"{_f(link.r_on, 'Ω')} is not assured: {fix}")
-                grp.add(Check("bridge-gate-drive", status, over, 0.0, "V", margin,
-                              f"{_COMMON}: gate overdrive of at least {GATE_OVERDRIVE:g} V; "
-                              f"threshold from {d.part_id} bridge.v_gs_th", msg, subject=d.ref,
-                              fix=fix))
-            if br.r_on is None:
-                grp.notes.append(f"{d.ref}: the translator's on-resistance (bridge.r_on) is not "
-                                 "stated; taken as 0 Ω, so the far side's low level is optimistic")
-            continue
-        if link.t_pd == 0.0 and d.part.timing.t_pd is None:
-            _default(seg_in, "bridge propagation delay (timing.t_pd) not stated: taken as 0 s "
-                             "in the setup budget", d.ref)
-        if _offset_side(d) == d.side:
-            offsets.append(d)
-    for d in offsets:
-        side = d.part.sides[d.side]
-        if side.low_offset is None:
-            grp.notes.append(f"{d.ref}: side {d.side} drives a static offset low but states no "
-                             "level (sides.<side>.low_offset); not checked")
-            continue
-        tap = next(t for t in _taps(seg, "i2c-sda") if t.dev is d)
-        off = _corner_values(side.low_offset, tap, v, vtol, "max")
-        rows = []
-        for sig in SIGNALS:
-            for r in seg_in.lines[sig].receivers:
-                if r.tap.dev.ref == d.ref:
-                    continue
-                m = (r.v_il - off) / r.v_il
-                c = _worst_index(m)
-                rows.append((float(m[c]), c, r, sig))
-        if rows:
-            rows.sort(key=lambda x: x[0])
-            m, c, r, sig = rows[0]
-            chk = check_max("bridge-offset", float(off[c]), float(r.v_il[c]), "V",
-                            f"{d.part_id} sides.{d.side}.low_offset; VIL from {r.source}",
-                            f"{d.ref} drives side {d.side} low to {_f(off[c], 'V')} (static "
-                            "offset) "
-                            f"against VIL {_f(r.v_il[c], 'V')} of {r.tap.label} ({sig.upper()})",
-                            subject=d.ref, **ctx.kw())
-            if chk.status == "fail":
-                chk.fix = (f"every device on the offset side must read {_f(off[c], 'V')} as low: "
-                           "replace those with VIL below it, or turn the repeater so its offset "
-                           "side faces devices with VIL = 0.3·VDD at a higher rail")
-                chk.message += f"; {chk.fix}"
-            grp.add(chk)
-    if offsets:
-        ok = len(offsets) < 2
-        names = ", ".join(f"{d.ref} side {d.side}" for d in offsets)
-        chk = check_true("bridge-offset-facing", ok,
-                         "common practice, no source: a static-offset side reads another's "
-                         "offset low as a driven low",
-                         f"static-offset sides on this segment: {names}" + (
-                             "" if ok else ": each sees the other's offset low as a driven low "
-                             "and holds it — the bus locks low"), subject=offsets[0].ref)
-        if not ok:
-            chk.fix = ("never join two static-offset sides: turn one repeater round or use a "
-                       "repeater without offset on one side")
-            chk.message += f"; {chk.fix}"
         grp.add(chk)
 
 

@@ -569,3 +569,9 @@ def controller_of(bus: Bus, segments: list[tuple[int, Segment]]) -> tuple[Device
             if any(d.ref == ctrl.ref for d in seg.devices):
                 return ctrl, index
     return ctrl, 0
+
+
+def worst_index(margins: np.ndarray) -> int:
+    """Index of the smallest margin, NaN counted as the worst. [1]"""
+    m = np.where(np.isnan(margins), -np.inf, margins)
+    return int(np.argmin(m))
