@@ -12,7 +12,7 @@ matter for the bus (bus capacitance, rise time, low level and the pull-up chosen
 
 On an open-drain bus (I2C, SMBus) the candidates are evaluated together: the
 position's pin values are stacked into arrays and the bus goes through
-:func:`pinlib.buses.odbatch.build` once per group of candidates of the same structure
+:func:`pinlib.buses.opendrain.batch.build` once per group of candidates of the same structure
 (which pins drive, which carry pull-ups...), ``auto`` pull-ups chosen for each.  A
 position on a push-pull bus (SPI, GPIO), or a bridging part, is evaluated one
 candidate at a time by its engine, and the ranking says so.
@@ -31,8 +31,8 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from pinlib import messages as M
-from pinlib.buses import odbatch as ob
 from pinlib.buses import opendrain as od
+from pinlib.buses.opendrain import batch as ob
 from pinlib.compare import can_serve, positions
 from pinlib.design import Bus, Design, Device
 from pinlib.errors import InputError, PinlibError

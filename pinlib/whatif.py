@@ -25,7 +25,7 @@ is ``k·Rp·Cb`` with its own Rp and Cb, and so on.  The stored part values (max
 pin capacitance, worst thresholds) stay what they are: they are limits, not spreads.
 
 Everything is vectorized: a batch of boards goes through
-:func:`pinlib.buses.odbatch.build` in one numpy pass (in chunks, for the progress
+:func:`pinlib.buses.opendrain.batch.build` in one numpy pass (in chunks, for the progress
 bar).  Push-pull buses (SPI, GPIO) go through :func:`pinlib.buses.ppbatch.build`:
 supplies, line lengths and extra line capacitance drawn; a large batch is evaluated from
 tables of the push-pull engine over the tolerance box, verified against the engine
@@ -49,9 +49,9 @@ from statistics import NormalDist
 import numpy as np
 
 from pinlib import messages as M
-from pinlib.buses import odbatch as ob
 from pinlib.buses import opendrain as od
 from pinlib.buses import ppbatch as ppb
+from pinlib.buses.opendrain import batch as ob
 from pinlib.design import Bus, Design, Segment
 from pinlib.errors import InputError
 from pinlib.progress import progress_bar

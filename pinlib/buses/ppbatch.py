@@ -30,7 +30,7 @@ from typing import Any
 import numpy as np
 
 from pinlib.buses import pushpull as pp
-from pinlib.buses.odbatch import BatchCheck
+from pinlib.buses.opendrain.batch import BatchCheck
 from pinlib.design import Bus, Design
 from pinlib.result import STATUS_CODES
 
@@ -244,7 +244,8 @@ class PpBatch:
     engine_boards: int = 0
 
     def checks(self):
-        """Every check: (None, BatchCheck), like :meth:`odbatch.BusBatch.checks`."""
+        """Every check: (None, BatchCheck), like the open-drain
+        :meth:`~pinlib.buses.opendrain.batch.BusBatch.checks`."""
         for c in self.items:
             yield None, c
 

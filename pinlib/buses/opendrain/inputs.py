@@ -336,15 +336,21 @@ def _part_pullups(taps: list[_Tap], seg_in: SegmentInputs, up: str) -> list[dict
     return out
 
 
+def rp_min_of(v_max, v_ol, i_ol):
+    """Rp(min) that one driver allows, UM10204 eq. 2 at the rail's maximum; 0 where its
+    sink point is at or above the rail (it bounds nothing); scalars or arrays. [Ω]"""
+    if np.ndim(v_max) == 0 and np.ndim(v_ol) == 0 and np.ndim(i_ol) == 0:
+        return float(rc.rp_min(v_max, v_ol, i_ol)) if v_ol < v_max else 0.0
+    ok = np.asarray(v_ol < v_max)
+    return np.where(ok, rc.rp_min(v_max, np.where(ok, v_ol, 0.0), i_ol), 0.0)
+
+
 def _weakest_sink(drivers: list[_Driver], v_max: float) -> tuple[float, _Driver | None]:
-    """Rp(min), UM10204 eq. 2 for each driver at the rail's maximum: the largest, and
-    whose it is (1 mΩ and None when no driver bounds Rp from below). [Ω]"""
+    """Rp(min) of a line: the largest of its drivers' and whose it is (1 mΩ and None when
+    no driver bounds Rp from below). [Ω]"""
     rp_min, weakest = 0.0, None
     for d in drivers:
-        v_ol = float(d.v_ol[1])
-        if v_ol >= v_max:  # a sink point at or above the rail bounds nothing
-            continue
-        r = float(rc.rp_min(v_max, v_ol, d.i_ol))
+        r = rp_min_of(v_max, float(d.v_ol[1]), d.i_ol)
         if r > rp_min:
             rp_min, weakest = r, d
     return (rp_min, weakest) if weakest is not None else (1e-3, None)
@@ -353,9 +359,9 @@ def _weakest_sink(drivers: list[_Driver], v_max: float) -> tuple[float, _Driver 
 def rp_max_of(lim: OpenDrainLimits, factor, cb):
     """Rp(max) of a line, UM10204 eq. 1 (or the SMBus rise points): ``inf`` where Cb is
     0 (nothing bounds the pull-up from above); scalars or arrays. [Ω]"""
+    if np.ndim(cb) == 0 and np.ndim(factor) == 0:
+        return float(rc.rp_max(lim.tr_max, cb, factor)) if cb > 0 else math.inf
     cb_arr = np.asarray(cb, dtype=float)
-    if cb_arr.ndim == 0:
-        return float(rc.rp_max(lim.tr_max, float(cb_arr), factor)) if cb_arr > 0 else math.inf
     ok = cb_arr > 0
     return np.where(ok, rc.rp_max(lim.tr_max, np.where(ok, cb_arr, 1.0), factor), math.inf)
 
