@@ -377,8 +377,8 @@ def _segment_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
         s_min, s_max = t.timing.supply
         lo = t.rail.min(axis=1, keepdims=True)
         hi = t.rail.max(axis=1, keepdims=True)
-        m_lo = (lo - s_min) / s_min
-        m_hi = (s_max - hi) / s_max
+        m_lo = min_margin(lo, s_min)
+        m_hi = max_margin(hi, s_max)
         low_side = m_lo < m_hi
         rows.append((np.where(low_side, min_margin(lo, s_min), max_margin(hi, s_max)),
                      np.where(low_side, lo, hi), np.where(low_side, s_min, s_max)))

@@ -18,7 +18,7 @@ from pinlib.buses.opendrain.inputs import (
     _taps,
     worst_index,
 )
-from pinlib.result import STATUSES, Check, Group, check_max, check_true
+from pinlib.result import STATUSES, Check, Group, check_max, check_true, max_margin
 
 
 def gate_drive(over):
@@ -74,7 +74,7 @@ def _offset_check(ctx, seg_in: SegmentInputs, d, grp: Group) -> None:
         for r in seg_in.lines[sig].receivers:
             if r.tap.dev.ref == d.ref:
                 continue
-            m = (r.v_il - off) / r.v_il
+            m = max_margin(off, r.v_il)
             c = worst_index(m)
             rows.append((float(m[c]), c, r, sig))
     if not rows:

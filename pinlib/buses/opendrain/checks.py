@@ -31,7 +31,7 @@ from pinlib.buses.opendrain.inputs import (
 )
 from pinlib.physics import pullup as pu
 from pinlib.physics.rc import RISE_10_90
-from pinlib.result import Check, Group, check_max, check_min, check_true
+from pinlib.result import Check, Group, check_max, check_min, check_true, max_margin, min_margin
 
 
 class Context:
@@ -201,7 +201,7 @@ def _low_level_checks(lc: _LineCtx, levels: list) -> list[Check]:
         if ln.receivers:
             rows = []
             for r in ln.receivers:
-                m = (r.v_il - vol_bus) / r.v_il
+                m = max_margin(vol_bus, r.v_il)
                 c = worst_index(m)
                 rows.append((float(m[c]), c, r))
             rows.sort(key=lambda x: x[0])
@@ -223,7 +223,7 @@ def _low_level_checks(lc: _LineCtx, levels: list) -> list[Check]:
             figs["noise_margin_low"] = float(np.min(nml))
             if lim.v_nl_rel is not None:
                 limit = lim.v_nl_rel * v
-                c = worst_index((nml - limit) / limit)
+                c = worst_index(min_margin(nml, limit))
                 checks_low.append(check_min(
                     "noise-margin-low", float(nml[c]), float(limit[c]), "V", lim.source_noise,
                     f"{up} low-level noise margin {_f(nml[c], 'V')} (lowest VIL − low level, "
@@ -283,7 +283,7 @@ def _high_level_checks(lc: _LineCtx) -> None:
     if ln.receivers:
         rows = []
         for r in ln.receivers:
-            m = (voh - r.v_ih) / r.v_ih
+            m = min_margin(voh, r.v_ih)
             c = worst_index(m)
             rows.append((float(m[c]), c, r))
         rows.sort(key=lambda x: x[0])
@@ -307,7 +307,7 @@ def _high_level_checks(lc: _LineCtx) -> None:
         figs["noise_margin_high"] = float(np.min(nmh))
         if lim.v_nh_rel is not None:
             limit = lim.v_nh_rel * v
-            c = worst_index((nmh - limit) / limit)
+            c = worst_index(min_margin(nmh, limit))
             grp.add(check_min("noise-margin-high", float(nmh[c]), float(limit[c]), "V",
                               lim.source_noise,
                               f"{up} high-level noise margin {_f(nmh[c], 'V')} (high level − "
@@ -464,7 +464,7 @@ def _domain_checks(ctx: Context, seg_in: SegmentInputs, grp: Group, taps: list) 
         if t.pin.abs_max is None:
             continue
         am = _corner_values(t.pin.abs_max, t, v, vtol, "min")
-        m = (am - v) / am
+        m = max_margin(v, am)
         c = worst_index(m)
         rows.append((float(m[c]), float(v[c]), float(am[c]), t))
     if rows:
@@ -499,8 +499,8 @@ def _domain_checks(ctx: Context, seg_in: SegmentInputs, grp: Group, taps: list) 
         if sup is None:
             continue
         lo, hi = t.vdd * (1 - vtol), t.vdd * (1 + vtol)
-        m_lo = (lo - float(sup.min.value)) / float(sup.min.value)
-        m_hi = (float(sup.max.value) - hi) / float(sup.max.value)
+        m_lo = float(min_margin(lo, float(sup.min.value)))
+        m_hi = float(max_margin(hi, float(sup.max.value)))
         rows.append((min(m_lo, m_hi), m_lo < m_hi, lo, hi, sup, t))
     if rows:
         rows.sort(key=lambda x: x[0])
