@@ -32,6 +32,7 @@ from typing import Any
 
 import numpy as np
 
+from pinlib.buses.opendrain.arith import fall_bounds, low_levels
 from pinlib.buses.opendrain.batchinputs import (
     Level,
     PinData,
@@ -221,32 +222,8 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     out.pick("rise-time", up, [(max_margin(tr, lim.tr_max), tr, lim.tr_max)], warn, "s")
     # -- low levels
     far = _far(s, ctx.segs, ctx.links[s.index], ln.signal)
-    levels, offset_levels = [], []
-    for d in ln.drivers:
-        if d.offset is not None:
-            vb = np.broadcast_to(d.offset, np.broadcast_shapes(np.shape(d.offset), v.shape))
-            offset_levels.append((vb, (v - vb) / rp_lo, d))
-            continue
-        r_low = d.r_on + d.r_series
-        if not far:
-            vb = pu.low_level(v, rp_lo, d.r_on, d.r_series)
-            i = pu.sink_current(v, rp_lo, d.r_on, d.r_series)
-        else:
-            g = 0
-            for link, _, rp in far:
-                g = g + 1.0 / (rp + link.r_on)
-            v_th = 0
-            for link, vv, rp in far:
-                v_th = v_th + vv / (rp + link.r_on)
-            vb, _, i = pu.translator_low_levels(v, rp_lo, v_th / g, 1.0 / g, 0.0, r_low)
-        levels.append((np.asarray(vb, dtype=float), np.asarray(i, dtype=float), d))
-    for link, v_other, rp_other in far:
-        for d in ctx.segs[link.other].lines[ln.signal].drivers:
-            if d.offset is not None or d.tap.dev.is_bridge:
-                continue
-            _, vf, _ = pu.translator_low_levels(v_other, rp_other, v, rp_lo, link.r_on,
-                                                d.r_on + d.r_series)
-            levels.append((np.asarray(vf, dtype=float), None, None))
+    raw, offset_levels = low_levels(v, rp_lo, ln.drivers, far, ctx.segs, ln.signal)
+    levels = [(vb, i, d if link is None else None) for vb, i, d, link in raw]
     f["v_ol"] = None
     if levels:
         shape = np.broadcast_shapes(*[lv[0].shape for lv in levels])
@@ -284,18 +261,8 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             limit = lim.v_nh_rel * v
             out.pick("noise-margin-high", up, [(min_margin(nmh, limit), nmh, limit)], warn, "V")
     # -- fall time
-    v_lo, v_hi = lim.measuring_levels(v)
-    falls = []
-    for d in ln.drivers:
-        falls.append(_worst_max(np.asarray(pu.fall_time_bound(
-            rp_lo, ln.cb, v, d.v_ol, d.i_ol, v_hi, v_lo, d.r_series), dtype=float)))
-    for link, _, _ in far:
-        for d in ctx.segs[link.other].lines[ln.signal].drivers:
-            if d.offset is not None or d.tap.dev.is_bridge:
-                continue
-            falls.append(_worst_max(np.asarray(pu.fall_time_bound(
-                rp_lo, ln.cb, v, d.v_ol, d.i_ol, v_hi, v_lo, d.r_series + link.r_on),
-                dtype=float)))
+    falls = [_worst_max(t) for t, _, _ in fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far,
+                                                       ctx.segs, ln.signal)]
     f["fall_time"] = None
     if falls:
         tf = _reduce(np.max, falls)

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from pinlib.buses.opendrain.arith import fall_bounds, low_levels
 from pinlib.buses.opendrain.bridges import bridge_checks
 from pinlib.buses.opendrain.explain import segment_figures, segment_notes, window_advice
 from pinlib.buses.opendrain.inputs import (
@@ -157,35 +158,14 @@ def _edges_and_window(lc: _LineCtx) -> None:
 
 def _low_levels(lc: _LineCtx) -> tuple[list, list]:
     """The low level each driver (or a far driver through a translator) makes, per corner."""
-    ctx, seg_in, ln, v, rp_lo, far = lc.ctx, lc.seg_in, lc.ln, lc.v, lc.rp_lo, lc.far
+    ctx, ln, v, rp_lo, far = lc.ctx, lc.ln, lc.v, lc.rp_lo, lc.far
     # -- low levels, per driver and corner
-    far = _far_branches(ctx, seg_in, ln.signal)
-    levels = []   # (label, v_bus per corner, i per corner or None, driver or None)
-    offset_levels = []  # a repeater side's static-offset low: the bridge-offset check
-    for d in ln.drivers:
-        if d.offset is not None:
-            vb = np.full(v.shape, d.offset)
-            offset_levels.append((d.tap.label, vb, (v - vb) / rp_lo, d))
-            continue
-        r_low = d.r_on + d.r_series
-        if not far:
-            vb = np.asarray(pu.low_level(v, rp_lo, d.r_on, d.r_series), dtype=float)
-            i = np.asarray(pu.sink_current(v, rp_lo, d.r_on, d.r_series), dtype=float)
-        else:
-            g = sum(1.0 / (rp + link.r_on) for link, _, rp in far)
-            v_th = sum(vv / (rp + link.r_on) for link, vv, rp in far) / g
-            vb, _, i = (np.asarray(x, dtype=float) for x in
-                        pu.translator_low_levels(v, rp_lo, v_th, 1.0 / g, 0.0, r_low))
-        levels.append((d.tap.label, vb, i, d))
-    for link, v_other, rp_other in far:
-        other = ctx.seg_ins[link.other]
-        for d in other.lines[ln.signal].drivers:
-            if d.offset is not None or d.tap.dev.is_bridge:
-                continue
-            _, vf, _ = pu.translator_low_levels(v_other, rp_other, v, rp_lo, link.r_on,
-                                                d.r_on + d.r_series)
-            levels.append((f"{d.tap.label} via {link.dev.ref}", np.asarray(vf, dtype=float),
-                           None, None))
+    raw, offs = low_levels(v, rp_lo, ln.drivers, far, ctx.seg_ins, ln.signal)
+    # (label, v_bus per corner, i per corner or None, driver on this segment or None)
+    levels = [(d.tap.label if link is None else f"{d.tap.label} via {link.dev.ref}", vb, i,
+               d if link is None else None) for vb, i, d, link in raw]
+    # a repeater side's static-offset low: the bridge-offset check
+    offset_levels = [(d.tap.label, vb, i, d) for vb, i, d in offs]
     return levels, offset_levels
 
 
@@ -322,19 +302,9 @@ def _fall_checks(lc: _LineCtx) -> None:
     ctx, seg_in, ln, grp, figs, lim = lc.ctx, lc.seg_in, lc.ln, lc.grp, lc.figs, lc.lim
     v, tol, up, rp_lo, kw, far = lc.v, lc.tol, lc.up, lc.rp_lo, lc.kw, lc.far
     # -- fall time: upper bound from each driver's guaranteed sink
-    v_lo, v_hi = lim.measuring_levels(v)
-    falls = []
-    for d in ln.drivers:
-        t = np.asarray(pu.fall_time_bound(rp_lo, ln.cb, v, d.v_ol, d.i_ol, v_hi, v_lo,
-                                          d.r_series), dtype=float)
-        falls.append((float(np.max(t)), d, ""))
-    for link, _, _ in far:
-        for d in ctx.seg_ins[link.other].lines[ln.signal].drivers:
-            if d.offset is not None or d.tap.dev.is_bridge:
-                continue
-            t = np.asarray(pu.fall_time_bound(rp_lo, ln.cb, v, d.v_ol, d.i_ol, v_hi, v_lo,
-                                              d.r_series + link.r_on), dtype=float)
-            falls.append((float(np.max(t)), d, f" via {link.dev.ref}"))
+    falls = [(float(np.max(t)), d, "" if link is None else f" via {link.dev.ref}")
+             for t, d, link in fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far, ctx.seg_ins,
+                                           ln.signal)]
     if falls:
         tf, d, via = max(falls, key=lambda x: x[0])
         figs["fall_time"] = tf
