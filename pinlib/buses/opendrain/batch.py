@@ -55,6 +55,7 @@ from pinlib.buses.opendrain.inputs import (
     _offset_side,
     collect,
     controller_of,
+    counted_clock,
     delays,
     links,
 )
@@ -284,19 +285,23 @@ def _reduce(fn, arrays):
 
 
 def _segment_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
-    lim, v, warn = ctx.lim, s.v, ctx.warn
-    seg = s.seg
+    """Timing, voltage domains, power states and bridging parts of one segment."""
+    _timing_checks(ctx, s, out, figs)
+    taps = [t for sig in SIGNALS for t in s.lines[sig].taps]
+    _domain_checks(ctx, s, out, taps)
+    _bridge_checks(ctx, s, out)
+
+
+def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
+    """The clock against the mode, the slowest device, the SDA data setup."""
+    lim, warn, seg = ctx.lim, ctx.warn, s.seg
     clock = ctx.clock
     ctrl = ctx.controller
     t_low = t_high = None
     if ctrl is not None:
         td = ctx.parts.timing(ctrl)
         t_low, t_high = td.t_low, td.t_high
-    if t_low is None or t_high is None:
-        period = 1.0 / clock
-        share = period / (lim.t_low + lim.t_high)
-        t_low = t_low if t_low is not None else max(lim.t_low, lim.t_low * share)
-        t_high = t_high if t_high is not None else max(lim.t_high, lim.t_high * share)
+    t_low, t_high = counted_clock(lim, clock, t_low, t_high)
     out.pick("scl-frequency", None, [(max_margin(clock, lim.f_max), clock, lim.f_max)], 0.0, "Hz")
     slow = [ctx.parts.timing(d).f_max for d in seg.devices
             if not d.is_controller and not d.is_bridge and ctx.parts.timing(d).f_max is not None]
@@ -322,7 +327,11 @@ def _segment_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
         budget = t_low - tvd - tr_sda
         out.pick("setup-time", None,
                  [(min_margin(budget, lim.t_su_dat), budget, lim.t_su_dat)], warn, "s")
-    # -- voltage domains
+
+
+def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
+    """abs_max against the pull-up rail, supply ranges, power states."""
+    v, warn, seg = s.v, ctx.warn, s.seg
     taps = [t for sig in SIGNALS for t in s.lines[sig].taps]
     rows, warns = [], []
     for t in taps:
@@ -360,7 +369,11 @@ def _segment_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
             if t.dev is d:
                 ok = np.logical_and(ok, t.pin.off_tolerant)
         out.truth("power-off", None, ok)
-    # -- bridging parts
+
+
+def _bridge_checks(ctx, s: _Seg, out: _Out) -> None:
+    """Gate drive of pass transistors; static-offset sides."""
+    v, warn, seg = s.v, ctx.warn, s.seg
     offsets = []
     for link in ctx.links[s.index]:
         d = link.dev

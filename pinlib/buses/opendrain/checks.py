@@ -26,6 +26,7 @@ from pinlib.buses.opendrain.inputs import (
     _f,
     _taps,
     controller_of,
+    counted_clock,
     delays,
     links,
     worst_index,
@@ -357,10 +358,7 @@ def _timing_checks(ctx: Context, seg_in: SegmentInputs, grp: Group, per_line: di
     if ctrl is not None and ctrl.part.timing.t_high is not None:
         t_high = float(ctrl.part.timing.t_high.value)
     if t_low is None or t_high is None:
-        period = 1.0 / clock
-        share = period / (lim.t_low + lim.t_high)
-        t_low = t_low if t_low is not None else max(lim.t_low, lim.t_low * share)
-        t_high = t_high if t_high is not None else max(lim.t_high, lim.t_high * share)
+        t_low, t_high = counted_clock(lim, clock, t_low, t_high)
         if seg_in.index == ctx.ctrl_seg:
             grp.notes.append(f"SCL low/high times taken as the controller counting "
                              f"{_f(t_low, 's')} / {_f(t_high, 's')} for a {_f(clock, 'Hz')} clock "

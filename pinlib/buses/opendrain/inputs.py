@@ -581,3 +581,14 @@ def worst_index(margins: np.ndarray) -> int:
     """Index of the smallest margin, NaN counted as the worst. [1]"""
     m = np.where(np.isnan(margins), -np.inf, margins)
     return int(np.argmin(m))
+
+
+def counted_clock(lim: OpenDrainLimits, clock: float, t_low, t_high):
+    """SCL low and high times as the controller counts them: its own where its part
+    states them, else the specification's tLOW:tHIGH proportion of the clock's period
+    (never below the specification's minima). [s]"""
+    if t_low is None or t_high is None:
+        share = (1.0 / clock) / (lim.t_low + lim.t_high)
+        t_low = t_low if t_low is not None else max(lim.t_low, lim.t_low * share)
+        t_high = t_high if t_high is not None else max(lim.t_high, lim.t_high * share)
+    return t_low, t_high
