@@ -29,7 +29,6 @@ def window_advice(lim: OpenDrainLimits, seg_in: SegmentInputs, ln: LineInputs, m
                    m_hi: float) -> str:
     """What would make the pull-up window work, quantified."""
     tol = seg_in.tol
-    v_max = float(seg_in.vdd[1])
     eff_lo, eff_hi = ln.rp_min / (1 - tol), ln.rp_max / (1 + tol)
     tips: list[str] = []
     # 1. every contributor in parallel below Rp(min): which of the parts' own to remove
@@ -69,12 +68,21 @@ def window_advice(lim: OpenDrainLimits, seg_in: SegmentInputs, ln: LineInputs, m
                         f"{_f(hi_r, 'Ω') if math.isfinite(hi_r) else 'no upper limit'} fits "
                         f"({_series_range(seg_in.segment.pullup_series, lo_r, hi_r)})")
         return "; ".join(tips)
+    return "; ".join(tips + _no_fit_advice(lim, seg_in, ln))
+
+
+def _no_fit_advice(lim: OpenDrainLimits, seg_in: SegmentInputs, ln: LineInputs) -> list[str]:
+    """Quantified ways out when no passive pull-up fits the window."""
+    tol = seg_in.tol
+    v_max = float(seg_in.vdd[1])
+    eff_lo = ln.rp_min / (1 - tol)
+    tips: list[str] = []
     # 2. no passive pull-up fits: quantified ways out
     if not math.isfinite(ln.rp_min):
         tips.append(f"the weakest sink ({ln.rp_min_label}) cannot even carry the current the "
                     "pull-ups across the translator already draw: raise those pull-ups, or use "
                     "drivers with a larger rating or an active translator")
-        return "; ".join(tips)
+        return tips
     factor = ln.rise_factor
     cb_lim = float(pu.cb_limit(lim.tr_max, ln.rp_min, tol, factor))
     tips.append(f"no resistor fits: Rp(min) {_f(ln.rp_min, 'Ω')} (weakest sink "
@@ -106,7 +114,7 @@ def window_advice(lim: OpenDrainLimits, seg_in: SegmentInputs, ln: LineInputs, m
         i_need = float(pu.sink_current_needed(v_max, float(d.v_ol[1]), ln.rp_max, tol))
         tips.append(f"drivers sinking at least {_f(i_need, 'A')} at {_f(float(d.v_ol[1]), 'V')} "
                     f"(the weakest, {d.tap.label}, is rated {_f(d.i_ol, 'A')})")
-    return "; ".join(tips)
+    return tips
 
 
 _WORST = {"bus_capacitance": max, "pullup": min, "rp_min": max, "rp_max": min, "rise_time": max,
