@@ -16,13 +16,13 @@ from typing import Any, NamedTuple
 
 import numpy as np
 
-from pinlib import eseries
 from pinlib.buses.limits import OpenDrainLimits
 from pinlib.buses.opendrain.inputs import (
     _NOT_RECEIVERS,
     SIGNALS,
     _Link,
     _offset_side,
+    auto_margins,
     rp_max_of,
     rp_min_of,
 )
@@ -480,11 +480,7 @@ def _choose(s: _Seg) -> None:
         for ln in s.lines.values():
             ln.pullup = float(seg.pullup)
         return
-    cand = eseries.values_in_range(seg.pullup_series, 10.0, 10e6)[None, :]
-    worst = np.full(cand.shape, np.inf)
-    for ln in s.lines.values():
-        lo, hi = pu.pullup_margins(cand, ln.rp_min, ln.rp_max, s.tol, ln.r_parts)
-        worst = np.minimum(worst, np.minimum(lo, hi))
+    cand, worst = auto_margins(seg.pullup_series, s.lines.values(), s.tol)
     chosen = cand[0, np.argmax(worst, axis=1)][:, None]
     for ln in s.lines.values():
         ln.pullup = chosen

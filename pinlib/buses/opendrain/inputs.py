@@ -386,6 +386,27 @@ def _line_inputs(signal: str, seg_in: SegmentInputs, lim: OpenDrainLimits,
                       weakest.tap.label if weakest else "")
 
 
+def auto_margins(series: str, lines, tol: float):
+    """The ``auto`` rule's score of every value of a series (10 Ω to 10 MΩ): the smaller
+    of the two tolerance-adjusted relative margins to Rp(min) and Rp(max), the worst over
+    the lines; the value with the largest score is chosen.  ``lines`` carry ``rp_min``,
+    ``rp_max`` and ``r_parts`` as floats (one bus) or ``(N, 1)`` columns (a batch).
+
+    Returns
+    -------
+    cand : numpy.ndarray
+        The series values, shape ``(1, M)``. [Ω]
+    worst : numpy.ndarray
+        Their scores, shape ``(1 or N, M)``. [1]
+    """
+    cand = eseries.values_in_range(series, 10.0, 10e6)[None, :]
+    worst = np.full(cand.shape, np.inf)
+    for ln in lines:
+        lo, hi = pu.pullup_margins(cand, ln.rp_min, ln.rp_max, tol, ln.r_parts)
+        worst = np.minimum(worst, np.minimum(lo, hi))
+    return cand, worst
+
+
 def _choose(seg_in: SegmentInputs) -> None:
     """Pick the design's resistor from its series (``auto``): the value that maximises the
     smaller of the two tolerance-adjusted relative margins over both lines."""
@@ -394,12 +415,10 @@ def _choose(seg_in: SegmentInputs) -> None:
         seg_in.pullup, seg_in.auto = float(seg.pullup), False
         return
     seg_in.auto = True
-    cand = eseries.values_in_range(seg.pullup_series, 10.0, 10e6)
-    worst = np.full(cand.shape, np.inf)
+    cand, worst = auto_margins(seg.pullup_series, seg_in.lines.values(), seg_in.tol)
+    cand, worst = cand[0], worst[0]
     parts_only = math.inf
     for ln in seg_in.lines.values():
-        lo, hi = pu.pullup_margins(cand, ln.rp_min, ln.rp_max, seg_in.tol, ln.r_parts)
-        worst = np.minimum(worst, np.minimum(lo, hi))
         if math.isfinite(ln.r_parts):
             lo0, hi0 = pu.pullup_margins(math.inf, ln.rp_min, ln.rp_max, seg_in.tol, ln.r_parts)
             parts_only = min(parts_only, float(min(lo0, hi0)))
