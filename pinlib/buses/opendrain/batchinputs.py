@@ -23,6 +23,7 @@ from pinlib.buses.opendrain.inputs import (
     _Link,
     _offset_side,
     auto_margins,
+    coupled_sinks,
     rp_max_of,
     rp_min_of,
 )
@@ -488,28 +489,12 @@ def _choose(s: _Seg) -> None:
 
 def _rp_min_coupled(s: _Seg, signal: str, segs: list[_Seg], links: list[_Link]):
     """Rp(min) of a segment joined to others through pass transistors (the engine's)."""
-    v_max = s.v[:, -1:]
-    far = [(link, segs[link.other], segs[link.other].v[:, -1:], segs[link.other].r_lo(signal))
+    far = [(link, segs[link.other].v[:, -1:], segs[link.other].r_lo(signal))
            for link in links if link.kind == "mosfet"]
     best = np.asarray(1e-3)
-    for d in s.lines[signal].drivers:
-        v_ol = d.v_ol[:, -1:]
-        i_far = 0
-        for link, _, vo, rp in far:
-            i_far = i_far + np.maximum(vo - v_ol, 0.0) / (rp + link.r_on)
-        budget_i = d.i_ol - i_far
-        ok = budget_i > 0
-        r = np.where(ok, (v_max - v_ol) / np.where(ok, budget_i, 1.0), math.inf)
+    for r, _, _ in coupled_sinks(s.v[:, -1:], s.lines[signal].drivers, far, segs, signal,
+                                 lambda x: x[:, -1:]):
         best = np.where(r > best, r, best)
-    for link, other, vo, rp_o in far:
-        for d in other.lines[signal].drivers:
-            if d.tap.dev.is_bridge:
-                continue
-            v_ol = d.v_ol[:, -1:]
-            budget_i = d.i_ol - np.maximum(vo - v_ol, 0.0) / rp_o
-            ok = budget_i > 0
-            r = np.where(ok, (v_max - v_ol) / np.where(ok, budget_i, 1.0) - link.r_on, math.inf)
-            best = np.where(r > best, r, best)
     return best
 
 

@@ -477,40 +477,68 @@ def collect(bus: Bus, design: Design) -> tuple[OpenDrainLimits, list[SegmentInpu
     return lim, out
 
 
-def _rp_min_coupled(seg_in: SegmentInputs, signal: str, seg_ins: list[SegmentInputs],
-                    links: list[_Link]) -> tuple[float, _Driver | None, str]:
-    """Rp(min) of a segment joined to others through pass transistors.
+def coupled_sinks(v_max, drivers, far, segs, signal: str, top):
+    """Rp(min) each driver allows on a segment joined to others through pass transistors,
+    for one bus (floats) or a batch (columns).
 
     A driver on either side of such a translator sinks both sides' pull-up currents, so
-    each driver's rating is shared: UM10204 eq. 2 with the current the other sides'
-    pull-ups (at their present values, −tolerance, rails at their maximum) already take,
-    ``Rp(min) = (VDD − VOL)/(IOL − I_far) − R_on`` for a driver across the translator.
+    its rating is shared: UM10204 eq. 2 with the current the other sides' pull-ups (at
+    their present values, −tolerance, rails at their maximum) already take,
+    ``Rp(min) = (VDD − VOL)/(IOL − I_far) − R_on`` for a driver across the translator
+    (``inf`` where the far pull-ups alone take the whole rating).
+
+    Parameters
+    ----------
+    v_max : float or numpy.ndarray
+        This segment's rail at its maximum. [V]
+    drivers : list
+        This segment's drivers of the line. [1]
+    far : list
+        ``(link, far rail at its maximum, far pull-up at −tolerance)`` per pass
+        transistor. [1], [V], [Ω]
+    segs : list
+        Every segment by index (``lines[signal].drivers``). [1]
+    top : callable
+        A driver's ``v_ol`` at the rail's maximum. [V]
+
+    Yields
+    ------
+    (r, driver, link or None)
+        Rp(min) of one driver, the driver, and the link it acts through. [Ω]
     """
-    v_max = float(seg_in.vdd[1])
-    ln = seg_in.lines[signal]
-    far = []
-    for link in links:
-        if link.kind == "mosfet":
-            other = seg_ins[link.other]
-            far.append((link, other, float(other.vdd[1]),
-                        other.r_eff(signal) * (1 - other.tol)))
-    best, who, label = 1e-3, None, ""
-    for d in ln.drivers:
-        v_ol = float(d.v_ol[1])
-        i_far = sum(max(vo - v_ol, 0.0) / (rp + link.r_on) for link, _, vo, rp in far)
+    for d in drivers:
+        v_ol = top(d.v_ol)
+        i_far = 0
+        for link, vo, rp in far:
+            i_far = i_far + np.maximum(vo - v_ol, 0.0) / (rp + link.r_on)
         budget_i = d.i_ol - i_far
-        r = (v_max - v_ol) / budget_i if budget_i > 0 else math.inf
-        if r > best:
-            best, who, label = r, d, d.tap.label
-    for link, other, vo, rp_o in far:
-        for d in other.lines[signal].drivers:
+        ok = budget_i > 0
+        yield np.where(ok, (v_max - v_ol) / np.where(ok, budget_i, 1.0), math.inf), d, None
+    for link, vo, rp_o in far:
+        for d in segs[link.other].lines[signal].drivers:
             if d.tap.dev.is_bridge:
                 continue
-            v_ol = float(d.v_ol[1])
-            budget_i = d.i_ol - max(vo - v_ol, 0.0) / rp_o
-            r = ((v_max - v_ol) / budget_i - link.r_on) if budget_i > 0 else math.inf
-            if r > best:
-                best, who, label = r, d, f"{d.tap.label} via {link.dev.ref}"
+            v_ol = top(d.v_ol)
+            budget_i = d.i_ol - np.maximum(vo - v_ol, 0.0) / rp_o
+            ok = budget_i > 0
+            yield (np.where(ok, (v_max - v_ol) / np.where(ok, budget_i, 1.0) - link.r_on,
+                            math.inf), d, link)
+
+
+def _rp_min_coupled(seg_in: SegmentInputs, signal: str, seg_ins: list[SegmentInputs],
+                    links: list[_Link]) -> tuple[float, _Driver | None, str]:
+    """Rp(min) of a segment joined to others through pass transistors (see
+    :func:`coupled_sinks`), the weakest sink and its label."""
+    far = [(link, float(seg_ins[link.other].vdd[1]),
+            seg_ins[link.other].r_eff(signal) * (1 - seg_ins[link.other].tol))
+           for link in links if link.kind == "mosfet"]
+    best, who, label = 1e-3, None, ""
+    for r, d, link in coupled_sinks(float(seg_in.vdd[1]), seg_in.lines[signal].drivers, far,
+                                    seg_ins, signal, lambda x: float(x[1])):
+        r = float(r)
+        if r > best:
+            best, who = r, d
+            label = d.tap.label if link is None else f"{d.tap.label} via {link.dev.ref}"
     return best, who, label
 
 
