@@ -22,8 +22,12 @@ from pinlib.buses.opendrain.inputs import (
     SIGNALS,
     _Link,
     _offset_side,
+    abs_max_follows,
     auto_margins,
     coupled_sinks,
+    default_leakage,
+    part_is_mosfet,
+    pin_roles,
     rp_max_of,
     rp_min_of,
 )
@@ -101,30 +105,23 @@ class TimingData:
 
 def _pin_data(pin, name: str, part: Part, dev: Device, lim: OpenDrainLimits,
               vdd: float, defaults=None) -> PinData:
-    mosfet = part.bridge is not None and part.bridge.kind == "mosfet"
-    if pin.leakage is not None:
-        leak = float(pin.leakage.value)
-    elif part.category not in _NOT_RECEIVERS:
-        leak = lim.i_leak
-    else:
-        leak = 0.0
+    leak = default_leakage(pin, part, lim)
+    driver, receiver = pin_roles(pin, part)
     (d_vol, d_iol, _), (d_il, d_ih) = defaults or (lim.default_sink(vdd), lim.default_levels())
-    has = pin.v_il is not None or pin.v_ih is not None
     abs_max = follows = None
     if pin.abs_max is not None:
         abs_max = Level.of(pin.abs_max)
-        th = pin.abs_max.value
-        follows = getattr(th, "scale", 0.0) == 1.0 and th.offset >= 0.0
+        follows = abs_max_follows(pin)
     internal = None
     if dev.internal_pullups and pin.pullup_internal is not None:
         internal = float(pin.pullup_internal.value)
     return PinData(
         name=name,
         open_drain=pin.drive == "open-drain",
-        driver=pin.drive == "open-drain" and not mosfet,
-        receiver=has or not (part.category in _NOT_RECEIVERS or mosfet),
+        driver=driver,
+        receiver=receiver,
         c_in=float(pin.c_in.value) if pin.c_in is not None else lim.c_pin,
-        leakage=leak,
+        leakage=leak if leak is not None else 0.0,
         v_ol=Level.of(pin.v_ol if pin.v_ol is not None else d_vol),
         i_ol=float((pin.i_ol if pin.i_ol is not None else d_iol).value),
         v_il=Level.of(pin.v_il if pin.v_il is not None else d_il),
@@ -374,10 +371,6 @@ def _corner(level: Level, tap: _Tap, v, worst: str):
     return np.broadcast_to(red, np.broadcast_shapes(red.shape, np.shape(v)))
 
 
-def _is_mosfet(part: Part | None) -> bool:
-    return part is not None and part.bridge is not None and part.bridge.kind == "mosfet"
-
-
 
 class _Parts:
     """Pin and timing data of each device, the substituted position stacked."""
@@ -426,7 +419,7 @@ def _taps(seg: Segment, function: str, parts: _Parts, scen: Scenario) -> list[_T
         if pin is None:
             continue
         part = parts.part_of(d)
-        out.append(_Tap(d, part, pin, parts.timing(d), vdd, own, _is_mosfet(part),
+        out.append(_Tap(d, part, pin, parts.timing(d), vdd, own, part_is_mosfet(part),
                         scen.tap_rail(vdd, seg)))
     return out
 

@@ -25,6 +25,7 @@ from pinlib.buses.opendrain.inputs import (
     _default,
     _f,
     _taps,
+    abs_max_follows,
     controller_of,
     counted_clock,
     delays,
@@ -439,10 +440,9 @@ def _domain_checks(ctx: Context, seg_in: SegmentInputs, grp: Group, taps: list) 
         rows.sort(key=lambda x: x[0])
         m, vv, am, t = rows[0]
         failing = sorted({x[3].label for x in rows if x[0] < 0})
-        th = t.pin.abs_max.value
         # an abs_max written relative to a device's own rail, on the pull-up rail, moves with
         # it and cannot be exceeded: pass without a near-limit warning
-        follows = not t.own and getattr(th, "scale", 0.0) == 1.0 and th.offset >= 0.0
+        follows = not t.own and abs_max_follows(t.pin)
         chk = check_max("input-voltage", vv, am, "V", t.source("abs_max"),
                         f"pull-up rail up to {_f(vv, 'V')} on the pins of {t.label} "
                         f"(abs_max {_f(am, 'V')} at its own rail {_f(t.vdd, 'V')})",

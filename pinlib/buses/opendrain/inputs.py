@@ -183,8 +183,37 @@ def _corner_values(value: Sourced, tap: _Tap, v: np.ndarray, tol: float, worst: 
     return np.full(v.shape, float(vals.min() if worst == "min" else vals.max()))
 
 
+def part_is_mosfet(part) -> bool:
+    """A pass-transistor translator (it neither drives nor reads the line)."""
+    return part is not None and part.bridge is not None and part.bridge.kind == "mosfet"
+
+
 def _is_mosfet(dev: Device) -> bool:
-    return dev.part.bridge is not None and dev.part.bridge.kind == "mosfet"
+    return part_is_mosfet(dev.part)
+
+
+def pin_roles(pin: Pin, part) -> tuple[bool, bool]:
+    """Whether a pin drives the line low (an open-drain output, not a pass transistor)
+    and whether it reads the line (it states a threshold, or its part is not a
+    connector, cable or pass transistor)."""
+    mosfet = part_is_mosfet(part)
+    driver = pin.drive == "open-drain" and not mosfet
+    has = pin.v_il is not None or pin.v_ih is not None
+    return driver, has or not (part.category in _NOT_RECEIVERS or mosfet)
+
+
+def default_leakage(pin: Pin, part, lim: OpenDrainLimits) -> float | None:
+    """A pin's leakage: its part's, else the specification's for a pin that reads the
+    line; None for a connector or cable that states none. [A]"""
+    if pin.leakage is not None:
+        return float(pin.leakage.value)
+    return lim.i_leak if part.category not in _NOT_RECEIVERS else None
+
+
+def abs_max_follows(pin: Pin) -> bool:
+    """An abs_max written as the device's own rail plus a non-negative offset."""
+    th = pin.abs_max.value
+    return getattr(th, "scale", 0.0) == 1.0 and th.offset >= 0.0
 
 
 def _offset_side(dev: Device) -> str | None:
@@ -261,10 +290,10 @@ def _leakage(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits, up: 
     """Sum of the pins' leakage; a receiver that states none at the specification's. [A]"""
     leak = 0.0
     for t in taps:
-        if t.pin.leakage is not None:
-            leak += float(t.pin.leakage.value)
-        elif t.dev.part.category not in _NOT_RECEIVERS:
-            leak += lim.i_leak
+        value = default_leakage(t.pin, t.dev.part, lim)
+        if value is not None:
+            leak += value
+        if t.pin.leakage is None and value is not None:
             _default(seg_in, f"no leakage stated: taken at the specification's "
                              f"{_f(lim.i_leak, 'A')} ({lim.source_pin})", f"{t.label} {up}")
     return leak
@@ -276,7 +305,7 @@ def _drivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
     v, vtol = seg_in.vdd, seg_in.vtol
     drivers: list[_Driver] = []
     for t in taps:
-        if t.pin.drive != "open-drain" or _is_mosfet(t.dev):
+        if not pin_roles(t.pin, t.dev.part)[0]:
             continue
         d_vol, d_iol, rule = lim.default_sink(t.vdd)
         vol_s = t.pin.v_ol if t.pin.v_ol is not None else d_vol
@@ -304,8 +333,7 @@ def _receivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
     d_il, d_ih = lim.default_levels()
     receivers: list[_Receiver] = []
     for t in taps:
-        has = t.pin.v_il is not None or t.pin.v_ih is not None
-        if not has and (t.dev.part.category in _NOT_RECEIVERS or _is_mosfet(t.dev)):
+        if not pin_roles(t.pin, t.dev.part)[1]:
             continue
         if t.pin.v_il is None or t.pin.v_ih is None:
             _default(seg_in, f"no input thresholds stated: taken at the specification's "
