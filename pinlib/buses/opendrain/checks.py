@@ -31,6 +31,7 @@ from pinlib.buses.opendrain.inputs import (
     delays,
     links,
     worst_index,
+    worst_per_row,
 )
 from pinlib.physics import pullup as pu
 from pinlib.physics.rc import RISE_10_90
@@ -181,11 +182,8 @@ def _low_level_checks(lc: _LineCtx, levels: list) -> list[Check]:
         figs["v_ol"] = float(np.max(vol_bus))
         # v-ol against every receiver's VIL
         if ln.receivers:
-            rows = []
-            for r in ln.receivers:
-                m = max_margin(vol_bus, r.v_il)
-                c = worst_index(m)
-                rows.append((float(m[c]), c, r))
+            ms, cs = worst_per_row(max_margin(vol_bus, np.stack([r.v_il for r in ln.receivers])))
+            rows = [(ms[k], cs[k], r) for k, r in enumerate(ln.receivers)]
             rows.sort(key=lambda x: x[0])
             m, c, r = rows[0]
             failing = [x[2].tap.label for x in rows if x[0] < 0]
@@ -263,11 +261,8 @@ def _high_level_checks(lc: _LineCtx) -> None:
     voh = np.asarray(pu.high_level(v, rp_hi, ln.leakage), dtype=float)
     figs["v_oh"] = float(np.min(voh))
     if ln.receivers:
-        rows = []
-        for r in ln.receivers:
-            m = min_margin(voh, r.v_ih)
-            c = worst_index(m)
-            rows.append((float(m[c]), c, r))
+        ms, cs = worst_per_row(min_margin(voh, np.stack([r.v_ih for r in ln.receivers])))
+        rows = [(ms[k], cs[k], r) for k, r in enumerate(ln.receivers)]
         rows.sort(key=lambda x: x[0])
         m, c, r = rows[0]
         failing = [x[2].tap.label for x in rows if x[0] < 0]
@@ -429,13 +424,11 @@ def _domain_checks(ctx: Context, seg_in: SegmentInputs, grp: Group, taps: list) 
     seg = seg_in.segment
     # -- voltage domains: abs_max against the pull-up rail
     rows = []
-    for t in taps:
-        if t.pin.abs_max is None:
-            continue
-        am = _corner_values(t.pin.abs_max, t, v, vtol, "min")
-        m = max_margin(v, am)
-        c = worst_index(m)
-        rows.append((float(m[c]), float(v[c]), float(am[c]), t))
+    capped = [t for t in taps if t.pin.abs_max is not None]
+    if capped:
+        ams = np.stack([_corner_values(t.pin.abs_max, t, v, vtol, "min") for t in capped])
+        ms, cs = worst_per_row(max_margin(v, ams))
+        rows = [(ms[k], float(v[cs[k]]), float(ams[k, cs[k]]), t) for k, t in enumerate(capped)]
     if rows:
         rows.sort(key=lambda x: x[0])
         m, vv, am, t = rows[0]

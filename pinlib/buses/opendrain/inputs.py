@@ -375,13 +375,13 @@ def rp_min_of(v_max, v_ol, i_ol):
 
 def _weakest_sink(drivers: list[_Driver], v_max: float) -> tuple[float, _Driver | None]:
     """Rp(min) of a line: the largest of its drivers' and whose it is (1 mΩ and None when
-    no driver bounds Rp from below). [Ω]"""
-    rp_min, weakest = 0.0, None
-    for d in drivers:
-        r = rp_min_of(v_max, float(d.v_ol[1]), d.i_ol)
-        if r > rp_min:
-            rp_min, weakest = r, d
-    return (rp_min, weakest) if weakest is not None else (1e-3, None)
+    no driver bounds Rp from below); all drivers in one array. [Ω]"""
+    if not drivers:
+        return 1e-3, None
+    r = rp_min_of(v_max, np.array([float(d.v_ol[1]) for d in drivers]),
+                  np.array([d.i_ol for d in drivers]))
+    k = int(np.argmax(r))
+    return (float(r[k]), drivers[k]) if r[k] > 0 else (1e-3, None)
 
 
 def rp_max_of(lim: OpenDrainLimits, factor, cb):
@@ -505,6 +505,20 @@ def collect(bus: Bus, design: Design) -> tuple[OpenDrainLimits, list[SegmentInpu
     return lim, out
 
 
+def _clip0(x):
+    """``max(x, 0)`` for a float or an array."""
+    return np.maximum(x, 0.0) if isinstance(x, np.ndarray) else max(x, 0.0)
+
+
+def _over_budget(dv, budget_i, r_on):
+    """``dv / budget_i − r_on`` where the budget is positive, ``inf`` where it is not
+    (floats or arrays). [Ω]"""
+    if not isinstance(budget_i, np.ndarray) and not isinstance(dv, np.ndarray):
+        return dv / budget_i - r_on if budget_i > 0 else math.inf
+    ok = budget_i > 0
+    return np.where(ok, dv / np.where(ok, budget_i, 1.0) - r_on, math.inf)
+
+
 def coupled_sinks(v_max, drivers, far, segs, signal: str, top):
     """Rp(min) each driver allows on a segment joined to others through pass transistors,
     for one bus (floats) or a batch (columns).
@@ -538,19 +552,15 @@ def coupled_sinks(v_max, drivers, far, segs, signal: str, top):
         v_ol = top(d.v_ol)
         i_far = 0
         for link, vo, rp in far:
-            i_far = i_far + np.maximum(vo - v_ol, 0.0) / (rp + link.r_on)
-        budget_i = d.i_ol - i_far
-        ok = budget_i > 0
-        yield np.where(ok, (v_max - v_ol) / np.where(ok, budget_i, 1.0), math.inf), d, None
+            i_far = i_far + _clip0(vo - v_ol) / (rp + link.r_on)
+        yield _over_budget(v_max - v_ol, d.i_ol - i_far, 0.0), d, None
     for link, vo, rp_o in far:
         for d in segs[link.other].lines[signal].drivers:
             if d.tap.dev.is_bridge:
                 continue
             v_ol = top(d.v_ol)
-            budget_i = d.i_ol - np.maximum(vo - v_ol, 0.0) / rp_o
-            ok = budget_i > 0
-            yield (np.where(ok, (v_max - v_ol) / np.where(ok, budget_i, 1.0) - link.r_on,
-                            math.inf), d, link)
+            yield (_over_budget(v_max - v_ol, d.i_ol - _clip0(vo - v_ol) / rp_o,
+                                link.r_on), d, link)
 
 
 def _rp_min_coupled(seg_in: SegmentInputs, signal: str, seg_ins: list[SegmentInputs],
@@ -667,3 +677,10 @@ def counted_clock(lim: OpenDrainLimits, clock: float, t_low, t_high):
         t_low = t_low if t_low is not None else max(lim.t_low, lim.t_low * share)
         t_high = t_high if t_high is not None else max(lim.t_high, lim.t_high * share)
     return t_low, t_high
+
+
+def worst_per_row(margins: np.ndarray) -> tuple[list[float], list[int]]:
+    """Per row of a ``(rows, corners)`` array of margins: the smallest (NaN counted as
+    the worst) and its corner. [1]"""
+    idx = np.argmin(np.where(np.isnan(margins), -np.inf, margins), axis=1)
+    return margins[np.arange(margins.shape[0]), idx].tolist(), idx.tolist()
