@@ -28,7 +28,7 @@ import numpy as np
 
 from pinlib import messages as M
 from pinlib.errors import FitWarning, InputError
-from pinlib.physics import rc
+from pinlib.physics import guards, rc
 
 __all__ = [
     "LEVELS",
@@ -206,15 +206,11 @@ def _require(value, ok, name: str, expected: str) -> None:
 
 
 def _non_negative(value, name: str, unit: str) -> np.ndarray:
-    x = _array(value, name)
-    _require(value, np.isfinite(x) & (x >= 0.0), name, f"a finite number >= 0 {unit}")
-    return x
+    return guards.non_negative(value, name, unit, convert=_array)
 
 
 def _positive(value, name: str, unit: str) -> np.ndarray:
-    x = _array(value, name)
-    _require(value, np.isfinite(x) & (x > 0.0), name, f"a finite number > 0 {unit}")
-    return x
+    return guards.positive(value, name, unit, convert=_array)
 
 
 def level_fractions(levels="10-90"):
