@@ -56,8 +56,10 @@ from pinlib.buses.opendrain.inputs import (
     collect,
     controller_of,
     counted_clock,
+    data_sources,
     delays,
     links,
+    supply_margin,
 )
 from pinlib.design import Bus, Design
 from pinlib.library.schema import Part
@@ -310,18 +312,13 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
         out.pick("device-speed", None, [(min_margin(f_dev, clock), f_dev, clock)], 0.0, "Hz")
     # -- SDA data setup
     tr_sda = figs["sda"]["rise_time"]
-    rows = []
-    if s.index == ctx.ctrl_seg:
-        for o in ctx.segs:
-            for d in o.seg.devices:
-                if d.is_controller or d.is_bridge:
-                    continue
-                pin = ctx.parts.pins(d, "i2c-sda", o.seg.supply)
-                if pin is None or not pin.open_drain:
-                    continue
-                rows.append(ctx.parts.timing(d).t_vd_dat + 2.0 * ctx.delay.get(o.index, 0.0))
-    elif ctrl is not None:
-        rows.append(ctx.parts.timing(ctrl).t_vd_dat)
+    def drives_sda(d, seg):
+        pin = ctx.parts.pins(d, "i2c-sda", seg.supply)
+        return pin is not None and pin.open_drain
+
+    rows = [ctx.parts.timing(d).t_vd_dat + extra for d, extra in data_sources(
+        s.index, ctx.ctrl_seg, [(o.index, o.seg) for o in ctx.segs], ctrl, ctx.delay,
+        drives_sda)]
     if rows:
         tvd = _reduce(np.max, rows)
         budget = t_low - tvd - tr_sda
@@ -353,11 +350,8 @@ def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
         s_min, s_max = t.timing.supply
         lo = t.rail.min(axis=1, keepdims=True)
         hi = t.rail.max(axis=1, keepdims=True)
-        m_lo = min_margin(lo, s_min)
-        m_hi = max_margin(hi, s_max)
-        low_side = m_lo < m_hi
-        rows.append((np.where(low_side, min_margin(lo, s_min), max_margin(hi, s_max)),
-                     np.where(low_side, lo, hi), np.where(low_side, s_min, s_max)))
+        m, low_side = supply_margin(lo, hi, s_min, s_max)
+        rows.append((m, np.where(low_side, lo, hi), np.where(low_side, s_min, s_max)))
     if rows:
         out.pick("supply-range", None, rows, 0.0, "V")
     # -- power states

@@ -28,8 +28,10 @@ from pinlib.buses.opendrain.inputs import (
     abs_max_follows,
     controller_of,
     counted_clock,
+    data_sources,
     delays,
     links,
+    supply_margin,
     worst_index,
     worst_per_row,
 )
@@ -341,6 +343,11 @@ def _segment_checks(ctx: Context, seg_in: SegmentInputs, grp: Group, per_line: d
     bridge_checks(ctx, seg_in, grp)
 
 
+def _drives_sda(d, seg) -> bool:
+    pin = d.part.pin_for("i2c-sda", d.side)
+    return pin is not None and pin[1].drive == "open-drain"
+
+
 def _timing_checks(ctx: Context, seg_in: SegmentInputs, grp: Group, per_line: dict) -> None:
     """The clock against the mode, the slowest device, and the SDA data setup."""
     lim = ctx.lim
@@ -383,27 +390,15 @@ def _timing_checks(ctx: Context, seg_in: SegmentInputs, grp: Group, per_line: di
     # -- SDA data setup
     tr_sda = sda["rise_time"]
     rows = []
-    if seg_in.index == ctx.ctrl_seg:
-        for s in ctx.seg_ins:
-            for d in s.segment.devices:
-                if d.is_controller or d.is_bridge:
-                    continue
-                pin = d.part.pin_for("i2c-sda", d.side)
-                if pin is None or pin[1].drive != "open-drain":
-                    continue
-                tvd = d.part.timing.t_vd_dat
-                val = float(tvd.value) if tvd is not None else lim.t_vd_dat
-                if tvd is None:
-                    _default(seg_in, f"no t_vd_dat stated: taken at the specification's "
-                                     f"{_f(lim.t_vd_dat, 's')} ({lim.source_vd_dat})", d.ref)
-                rows.append((val + 2.0 * ctx.delay.get(s.index, 0.0), d))
-    elif ctrl is not None:
-        tvd = ctrl.part.timing.t_vd_dat
+    segments = [(s.index, s.segment) for s in ctx.seg_ins]
+    for d, extra in data_sources(seg_in.index, ctx.ctrl_seg, segments, ctrl, ctx.delay,
+                                 _drives_sda):
+        tvd = d.part.timing.t_vd_dat
         val = float(tvd.value) if tvd is not None else lim.t_vd_dat
         if tvd is None:
             _default(seg_in, f"no t_vd_dat stated: taken at the specification's "
-                             f"{_f(lim.t_vd_dat, 's')} ({lim.source_vd_dat})", ctrl.ref)
-        rows.append((val, ctrl))
+                             f"{_f(lim.t_vd_dat, 's')} ({lim.source_vd_dat})", d.ref)
+        rows.append((val + extra, d))
     if rows:
         tvd, d = max(rows, key=lambda x: x[0])
         budget_s = t_low - tvd - tr_sda
@@ -460,9 +455,8 @@ def _domain_checks(ctx: Context, seg_in: SegmentInputs, grp: Group, taps: list) 
         if sup is None:
             continue
         lo, hi = t.vdd * (1 - vtol), t.vdd * (1 + vtol)
-        m_lo = float(min_margin(lo, float(sup.min.value)))
-        m_hi = float(max_margin(hi, float(sup.max.value)))
-        rows.append((min(m_lo, m_hi), m_lo < m_hi, lo, hi, sup, t))
+        m, low_side = supply_margin(lo, hi, float(sup.min.value), float(sup.max.value))
+        rows.append((float(m), bool(low_side), lo, hi, sup, t))
     if rows:
         rows.sort(key=lambda x: x[0])
         _, low_side, lo, hi, sup, t = rows[0]

@@ -29,6 +29,7 @@ from pinlib.physics import lines as line_models
 from pinlib.physics import pullup as pu
 from pinlib.physics import rc
 from pinlib.quantity import format_si
+from pinlib.result import max_margin, min_margin
 
 SIGNALS = {"sda": "i2c-sda", "scl": "i2c-scl"}
 
@@ -684,3 +685,27 @@ def worst_per_row(margins: np.ndarray) -> tuple[list[float], list[int]]:
     the worst) and its corner. [1]"""
     idx = np.argmin(np.where(np.isnan(margins), -np.inf, margins), axis=1)
     return margins[np.arange(margins.shape[0]), idx].tolist(), idx.tolist()
+
+
+def data_sources(index: int, ctrl_seg: int, segments: list[tuple[int, Segment]],
+                 ctrl: Device | None, delay: dict, drives_sda):
+    """Who sets SDA for the setup budget seen on segment ``index``, and the bridge delay
+    each adds: on the controller's segment every target whose SDA pin drives
+    (``drives_sda(device, segment)``), with its round trip through the bridges; elsewhere
+    the controller. Yields ``(device, delay)``. [s]"""
+    if index == ctrl_seg:
+        for i, seg in segments:
+            for d in seg.devices:
+                if d.is_controller or d.is_bridge or not drives_sda(d, seg):
+                    continue
+                yield d, 2.0 * delay.get(i, 0.0)
+    elif ctrl is not None:
+        yield ctrl, 0.0
+
+
+def supply_margin(lo, hi, s_min, s_max):
+    """A rail's ends against a part's supply range: the margin of the end nearer its
+    limit, and whether that is the low end (floats or arrays). [1]"""
+    m_lo, m_hi = min_margin(lo, s_min), max_margin(hi, s_max)
+    low_side = m_lo < m_hi
+    return np.where(low_side, m_lo, m_hi), low_side
