@@ -25,9 +25,8 @@ from pinlib.buses.opendrain.inputs import (
     abs_max_follows,
     auto_margins,
     coupled_sinks,
-    default_leakage,
     part_is_mosfet,
-    pin_roles,
+    pin_rules,
     rp_max_of,
     rp_min_of,
 )
@@ -105,8 +104,7 @@ class TimingData:
 
 def _pin_data(pin, name: str, part: Part, dev: Device, lim: OpenDrainLimits,
               vdd: float, defaults=None) -> PinData:
-    leak = default_leakage(pin, part, lim)
-    driver, receiver = pin_roles(pin, part)
+    driver, receiver, leak = pin_rules(pin, part, lim)
     (d_vol, d_iol, _), (d_il, d_ih) = defaults or (lim.default_sink(vdd), lim.default_levels())
     abs_max = follows = None
     if pin.abs_max is not None:

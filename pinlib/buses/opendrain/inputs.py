@@ -193,22 +193,19 @@ def _is_mosfet(dev: Device) -> bool:
     return part_is_mosfet(dev.part)
 
 
-def pin_roles(pin: Pin, part) -> tuple[bool, bool]:
-    """Whether a pin drives the line low (an open-drain output, not a pass transistor)
-    and whether it reads the line (it states a threshold, or its part is not a
-    connector, cable or pass transistor)."""
-    mosfet = part_is_mosfet(part)
+def pin_rules(pin: Pin, part, lim: OpenDrainLimits) -> tuple[bool, bool, float | None]:
+    """How the engine reads a pin: whether it drives the line low (an open-drain output,
+    not a pass transistor), whether it reads the line (it states a threshold, or its part
+    is not a connector, cable or pass transistor), and its leakage (its part's, else the
+    specification's; None for a connector or cable that states none). [1], [1], [A]"""
+    bridge = part.bridge
+    mosfet = bridge is not None and bridge.kind == "mosfet"
+    quiet = part.category in _NOT_RECEIVERS
     driver = pin.drive == "open-drain" and not mosfet
-    has = pin.v_il is not None or pin.v_ih is not None
-    return driver, has or not (part.category in _NOT_RECEIVERS or mosfet)
-
-
-def default_leakage(pin: Pin, part, lim: OpenDrainLimits) -> float | None:
-    """A pin's leakage: its part's, else the specification's for a pin that reads the
-    line; None for a connector or cable that states none. [A]"""
+    receiver = pin.v_il is not None or pin.v_ih is not None or not (quiet or mosfet)
     if pin.leakage is not None:
-        return float(pin.leakage.value)
-    return lim.i_leak if part.category not in _NOT_RECEIVERS else None
+        return driver, receiver, float(pin.leakage.value)
+    return driver, receiver, None if quiet else lim.i_leak
 
 
 def abs_max_follows(pin: Pin) -> bool:
@@ -291,7 +288,7 @@ def _leakage(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits, up: 
     """Sum of the pins' leakage; a receiver that states none at the specification's. [A]"""
     leak = 0.0
     for t in taps:
-        value = default_leakage(t.pin, t.dev.part, lim)
+        value = pin_rules(t.pin, t.dev.part, lim)[2]
         if value is not None:
             leak += value
         if t.pin.leakage is None and value is not None:
@@ -306,7 +303,7 @@ def _drivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
     v, vtol = seg_in.vdd, seg_in.vtol
     drivers: list[_Driver] = []
     for t in taps:
-        if not pin_roles(t.pin, t.dev.part)[0]:
+        if not pin_rules(t.pin, t.dev.part, lim)[0]:
             continue
         d_vol, d_iol, rule = lim.default_sink(t.vdd)
         vol_s = t.pin.v_ol if t.pin.v_ol is not None else d_vol
@@ -334,7 +331,7 @@ def _receivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
     d_il, d_ih = lim.default_levels()
     receivers: list[_Receiver] = []
     for t in taps:
-        if not pin_roles(t.pin, t.dev.part)[1]:
+        if not pin_rules(t.pin, t.dev.part, lim)[1]:
             continue
         if t.pin.v_il is None or t.pin.v_ih is None:
             _default(seg_in, f"no input thresholds stated: taken at the specification's "
