@@ -22,9 +22,18 @@ The numbers come from the vectorized functions of :mod:`pinlib.physics.pullup` a
 :mod:`pinlib.physics.rc`; :func:`budget` (re-exported) evaluates a whole line for arrays
 of Rp, Cb and VDD, and :func:`capacitance_from_rise` is the bench helper.
 
-The package: :mod:`.inputs` (pass 1, shared with the array checks), :mod:`.checks`
-(pass 2 for one bus, with messages), :mod:`.explain` (advice, figures, notes) and
-:mod:`.batch` (the same checks over arrays of variants, for studies).
+The package:
+
+- :mod:`.inputs`: pass 1 for one bus, and the rules both paths share: a pin's roles
+  and leakage (``pin_rules``), Rp(min)/Rp(max) through :mod:`pinlib.physics.rc`, the
+  ``auto`` rule, Rp(min) across pass transistors, the joins between segments, bridge
+  delays, the controller's segment, the SCL times it counts, who sets SDA, a rail
+  against a supply range;
+- :mod:`.arith`: shape-agnostic line arithmetic (low levels, fall-time bounds);
+- :mod:`.checks` and :mod:`.bridges`: pass 2 for one bus, with messages and fixes;
+- :mod:`.explain`: advice for a failing window, a segment's figures and notes;
+- :mod:`.batchinputs` and :mod:`.batch`: the same checks over arrays of variants
+  (Monte Carlo, corners, candidate parts), without messages.
 """
 
 from __future__ import annotations

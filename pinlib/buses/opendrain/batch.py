@@ -1,15 +1,16 @@
 """The open-drain engine's checks, vectorized over a batch of variants of one bus.
 
-:func:`pinlib.buses.opendrain.evaluate_bus` evaluates one bus at its worst-case corners and explains
-every figure.  Studies over many variants of a bus — Monte Carlo samples and corners of
+:func:`pinlib.buses.opendrain.evaluate_bus` evaluates one bus at its worst-case corners
+and explains every figure.  Studies over many variants of a bus — Monte Carlo samples and corners of
 its toleranced parameters (:mod:`pinlib.whatif`), or every library part that could
 stand in one position (:mod:`pinlib.candidates`) — need the same numbers for thousands
 of variants at once.  :func:`build` computes them in one numpy pass per bus: the
 *structure* of the bus (which pins drive and which receive, which part pull-ups exist)
 is fixed for a batch; every *value* may be an array over the batch.
 
-It follows the engine step by step — the same physics functions, the same order of
-operations, the same checks in the same order, without the messages — so that each
+It shares the one-bus engine's rules and arithmetic (:mod:`.inputs`, :mod:`.arith`,
+:func:`.bridges.gate_drive`) and makes the same checks in the same order, without the
+messages, so that each
 variant's margins are the engine's; the tests hold it to that (a batch of candidates
 against :func:`pinlib.check.check_design` of each substituted design, and samples of a
 design without tolerances against its engine result).
