@@ -24,7 +24,8 @@ of Rp, Cb and VDD, and :func:`capacitance_from_rise` is the bench helper.
 
 The package:
 
-- :mod:`.inputs`: pass 1 for one bus, and the rules both paths share: a pin's roles
+- :mod:`.inputs`: pass 1 for one bus;
+- :mod:`.rules`: the rules both paths share: a pin's roles
   and leakage (``pin_rules``), Rp(min)/Rp(max) through :mod:`pinlib.physics.rc`, the
   ``auto`` rule, Rp(min) across pass transistors, the joins between segments, bridge
   delays, the controller's segment, the SCL times it counts, who sets SDA, a rail
@@ -40,13 +41,15 @@ from __future__ import annotations
 
 from pinlib.buses.opendrain.checks import Context, evaluate_segment
 from pinlib.buses.opendrain.inputs import (
-    CLAMP_DROP,
-    GATE_OVERDRIVE,
-    SIGNALS,
     LineInputs,
     SegmentInputs,
     _f,
     collect,
+)
+from pinlib.buses.opendrain.rules import (
+    CLAMP_DROP,
+    GATE_OVERDRIVE,
+    SIGNALS,
 )
 from pinlib.design import Bus, Design
 from pinlib.errors import DesignError, InputError

@@ -51,10 +51,12 @@ from pinlib.buses.opendrain.batchinputs import (
 )
 from pinlib.buses.opendrain.bridges import gate_drive
 from pinlib.buses.opendrain.inputs import (
-    SIGNALS,
-    _Link,
     _offset_side,
     collect,
+)
+from pinlib.buses.opendrain.rules import (
+    SIGNALS,
+    _Link,
     controller_of,
     counted_clock,
     data_sources,

@@ -17,11 +17,11 @@ from typing import Any, NamedTuple
 import numpy as np
 
 from pinlib.buses.limits import OpenDrainLimits
-from pinlib.buses.opendrain.inputs import (
+from pinlib.buses.opendrain.inputs import _offset_side
+from pinlib.buses.opendrain.rules import (
     _NOT_RECEIVERS,
     SIGNALS,
     _Link,
-    _offset_side,
     abs_max_follows,
     auto_margins,
     coupled_sinks,

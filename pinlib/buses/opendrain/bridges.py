@@ -7,15 +7,17 @@ from __future__ import annotations
 import numpy as np
 
 from pinlib.buses.opendrain.inputs import (
-    _COMMON,
-    GATE_OVERDRIVE,
-    SIGNALS,
     SegmentInputs,
     _corner_values,
     _default,
     _f,
     _offset_side,
     _taps,
+)
+from pinlib.buses.opendrain.rules import (
+    _COMMON,
+    GATE_OVERDRIVE,
+    SIGNALS,
     worst_index,
 )
 from pinlib.result import STATUSES, Check, Group, check_max, check_true, max_margin

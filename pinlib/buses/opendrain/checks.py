@@ -15,16 +15,18 @@ from pinlib.buses.opendrain.arith import fall_bounds, low_levels
 from pinlib.buses.opendrain.bridges import bridge_checks
 from pinlib.buses.opendrain.explain import segment_figures, segment_notes, window_advice
 from pinlib.buses.opendrain.inputs import (
-    _COMMON,
-    _CORNERS,
-    CLAMP_DROP,
-    SIGNALS,
     LineInputs,
     SegmentInputs,
     _corner_values,
     _default,
     _f,
     _taps,
+)
+from pinlib.buses.opendrain.rules import (
+    _COMMON,
+    _CORNERS,
+    CLAMP_DROP,
+    SIGNALS,
     abs_max_follows,
     controller_of,
     counted_clock,

@@ -9,7 +9,14 @@ import numpy as np
 
 from pinlib import eseries
 from pinlib.buses.limits import OpenDrainLimits
-from pinlib.buses.opendrain.inputs import SIGNALS, LineInputs, SegmentInputs, _f
+from pinlib.buses.opendrain.inputs import (
+    LineInputs,
+    SegmentInputs,
+    _f,
+)
+from pinlib.buses.opendrain.rules import (
+    SIGNALS,
+)
 from pinlib.physics import pullup as pu
 from pinlib.result import Group
 
