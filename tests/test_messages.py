@@ -1429,6 +1429,12 @@ def _(env):
     return _fails(lambda e: monte_carlo(e.design(I2C_BUS), 0), env)
 
 
+@case("TOO_MANY_SAMPLES")
+def _(env):
+    from pinlib.studies.whatif import MAX_BOARDS, monte_carlo
+    return _fails(lambda e: monte_carlo(e.design(I2C_BUS), MAX_BOARDS + 1), env)
+
+
 @case("CHUNK_NOT_POSITIVE")
 def _(env):
     from pinlib.studies.whatif import monte_carlo

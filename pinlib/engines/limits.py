@@ -113,11 +113,13 @@ class OpenDrainLimits:
                 f"0.15 V, {smbus_std.SOURCE_AC}): tr = ln((VDD − {lo:.2f})/(VDD − {hi:.2f}))"
                 "·Rp·Cb")
 
-    def tf_min(self, vdd) -> float | None:
-        """Minimum fall time at a supply (None where the document gives none). [s]"""
+    def tf_min(self, vdd):
+        """Minimum fall time at a supply, a float for a float and an array for an array
+        (None where the document gives none). [s]"""
         if self._i2c is None or self._i2c.tf_min is None:
             return None
-        return float(self._i2c.tf_min_at(vdd))
+        t = self._i2c.tf_min_at(vdd)
+        return float(t) if np.ndim(t) == 0 else np.asarray(t, dtype=float)
 
     # ------------------------------------------------------------------ defaults for pins
 

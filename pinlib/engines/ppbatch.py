@@ -31,7 +31,7 @@ import numpy as np
 
 from pinlib.core.protocols import PUSH_PULL_PROTOCOLS
 from pinlib.engines import pushpull as pp
-from pinlib.engines.odbatch import BatchCheck
+from pinlib.engines.opendrain.batch import BatchCheck
 from pinlib.engines.ppvariant import (
     check_names,
     chosen_resistors,
@@ -86,7 +86,8 @@ class PpBatch:
     engine_boards: int = 0
 
     def checks(self):
-        """Every check: (None, BatchCheck), like :meth:`odbatch.BusBatch.checks`."""
+        """Every check: (None, BatchCheck), like the open-drain
+        :meth:`~pinlib.engines.opendrain.batch.BusBatch.checks`."""
         for c in self.items:
             yield None, c
 

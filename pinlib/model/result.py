@@ -142,31 +142,33 @@ def status_codes(margin, warn_margin: float):
     return np.where(np.isnan(m) | (m < 0), 2, np.where(m < warn_margin, 1, 0)).astype(np.int8)
 
 
-def _array_margin(excess, value, limit, at_zero):
+def _array_margin(excess, limit, at_zero):
+    """``excess / |limit|`` over arrays; at a zero limit ``+inf`` where ``at_zero()``
+    holds (the value meets a zero limit) and ``-inf`` where it does not."""
     import numpy as np
 
-    safe = np.where(limit != 0, np.abs(limit), 1.0)
-    with np.errstate(over="ignore", invalid="ignore"):  # as float arithmetic: inf, NaN
-        ratio = excess / safe
-    return np.where(limit != 0, ratio, np.where(at_zero, math.inf, -math.inf))
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):  # as float: inf, NaN
+        ratio = excess / np.abs(limit)
+    nonzero = limit != 0
+    if nonzero.all():
+        return ratio
+    return np.where(nonzero, ratio, np.where(at_zero(), math.inf, -math.inf))
 
 
 def min_margin(value, limit):
     """The margin of :func:`check_min` (``value >= limit``) over arrays."""
     import numpy as np
 
-    value, limit = np.broadcast_arrays(np.asarray(value, dtype=float),
-                                       np.asarray(limit, dtype=float))
-    return _array_margin(value - limit, value, limit, value >= 0)
+    value, limit = np.asarray(value, dtype=float), np.asarray(limit, dtype=float)
+    return _array_margin(value - limit, limit, lambda: value >= 0)
 
 
 def max_margin(value, limit):
     """The margin of :func:`check_max` (``value <= limit``) over arrays."""
     import numpy as np
 
-    value, limit = np.broadcast_arrays(np.asarray(value, dtype=float),
-                                       np.asarray(limit, dtype=float))
-    return _array_margin(limit - value, value, limit, value <= 0)
+    value, limit = np.asarray(value, dtype=float), np.asarray(limit, dtype=float)
+    return _array_margin(limit - value, limit, lambda: value <= 0)
 
 
 def check_max(id, value, limit, unit, source, message, *, warn_margin=0.10, **kw) -> Check:

@@ -28,7 +28,7 @@ import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import FitWarning, InputError
-from pinlib.physics import rc
+from pinlib.physics import guards, rc
 
 __all__ = [
     "LEVELS",
@@ -104,7 +104,7 @@ _TRIAL_CHUNKS = ((0, 2), (2, _TRIALS))
 _FIT_CACHE: OrderedDict = OrderedDict()
 _FIT_CACHE_SIZE = 256
 #: A second store of fits, by :func:`fit_key`, that outlives the process (the command
-#: line installs one: :mod:`pinlib.fitstore`); None: fits live in this process only.
+#: line installs one: :mod:`pinlib.engines.fitstore`); None: fits live in this process only.
 FIT_STORE = None
 
 
@@ -131,7 +131,7 @@ class DriverFit:
         being unable to separate it from ``t_ramp``) or ``"default"``
         (:data:`DEFAULT_R_OUT`, for the same reason). [1]
     warnings : tuple of str
-        The messages of the :class:`~pinlib.errors.FitWarning` the fit emitted. [1]
+        The messages of the :class:`~pinlib.core.errors.FitWarning` the fit emitted. [1]
     notes : tuple of str
         What the fit assumed (a default, a value taken from the output levels). [1]
     """
@@ -206,15 +206,11 @@ def _require(value, ok, name: str, expected: str) -> None:
 
 
 def _non_negative(value, name: str, unit: str) -> np.ndarray:
-    x = _array(value, name)
-    _require(value, np.isfinite(x) & (x >= 0.0), name, f"a finite number >= 0 {unit}")
-    return x
+    return guards.non_negative(value, name, unit, convert=_array)
 
 
 def _positive(value, name: str, unit: str) -> np.ndarray:
-    x = _array(value, name)
-    _require(value, np.isfinite(x) & (x > 0.0), name, f"a finite number > 0 {unit}")
-    return x
+    return guards.positive(value, name, unit, convert=_array)
 
 
 def level_fractions(levels="10-90"):

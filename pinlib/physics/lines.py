@@ -10,7 +10,7 @@ termination calculations use. Dispersion and conductor or dielectric loss are le
 
 Each method's validity range is held as data in :data:`VALIDITY`;
 :func:`line_methods` lists the methods whose ranges contain given inputs, and the model
-functions emit :class:`~pinlib.errors.ValidityWarning` for inputs outside them.
+functions emit :class:`~pinlib.core.errors.ValidityWarning` for inputs outside them.
 """
 
 from __future__ import annotations

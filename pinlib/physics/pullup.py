@@ -2,7 +2,7 @@
 
 Every function works elementwise on numpy arrays (pull-up Rp, bus capacitance Cb,
 supply VDD, sink data) in SI units and knows nothing of parts or files; the open-drain
-engine (:mod:`pinlib.buses.opendrain`) feeds them the worst-case corners of a design,
+engine (:mod:`pinlib.engines.opendrain`) feeds them the worst-case corners of a design,
 and sweeps feed them whole grids.
 
 The circuit is the one of UM10204 §7: a pull-up resistor ``rp`` from the rail ``vdd``
@@ -26,6 +26,7 @@ import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.physics import guards
 from pinlib.physics.rc import RISE_10_90, RISE_30_70
 
 __all__ = [
@@ -50,27 +51,15 @@ __all__ = [
 
 
 def _arr(x, name: str) -> np.ndarray:
-    try:
-        return np.asarray(x, dtype=float)
-    except (TypeError, ValueError):
-        raise InputError(M.NOT_A_NUMBER, field=name, value=x, expected="a float [SI]") from None
+    return guards.floats(x, name)
 
 
 def _positive(x, name: str, unit: str, *, allow_inf: bool = False) -> np.ndarray:
-    a = _arr(x, name)
-    ok = (a > 0) & (np.isfinite(a) | (allow_inf & np.isposinf(a)))
-    if not np.all(ok):
-        raise InputError(M.MUST_BE_POSITIVE, field=name, value=x,
-                         expected=f"a number > 0 {unit}")
-    return a
+    return guards.positive(x, name, unit, allow_inf=allow_inf, problem=M.MUST_BE_POSITIVE)
 
 
 def _non_negative(x, name: str, unit: str) -> np.ndarray:
-    a = _arr(x, name)
-    if not np.all(np.isfinite(a) & (a >= 0)):
-        raise InputError(M.MUST_BE_FINITE_NON_NEGATIVE, field=name, value=x,
-                         expected=f"a number >= 0 {unit}")
-    return a
+    return guards.non_negative(x, name, unit)
 
 
 def _out(a):

@@ -16,6 +16,7 @@ import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.physics import guards
 
 __all__ = [
     "RISE_30_70",
@@ -62,28 +63,16 @@ def _fraction(value, name: str, *, allow_zero: bool = True) -> np.ndarray:
     return f
 
 
+def _as_array(value, name: str) -> np.ndarray:
+    return np.asarray(value, dtype=float)
+
+
 def _non_negative(value, name: str, unit: str) -> np.ndarray:
-    x = np.asarray(value, dtype=float)
-    if not np.all(np.isfinite(x) & (x >= 0.0)):
-        raise InputError(
-            M.MUST_BE_FINITE_NON_NEGATIVE,
-            field=name,
-            value=value,
-            expected=f"a number >= 0 {unit}",
-        )
-    return x
+    return guards.non_negative(value, name, unit, convert=_as_array)
 
 
 def _positive(value, name: str, unit: str) -> np.ndarray:
-    x = np.asarray(value, dtype=float)
-    if not np.all(np.isfinite(x) & (x > 0.0)):
-        raise InputError(
-            M.MUST_BE_FINITE_POSITIVE,
-            field=name,
-            value=value,
-            expected=f"a number > 0 {unit}",
-        )
-    return x
+    return guards.positive(value, name, unit, convert=_as_array)
 
 
 def _one_minus_exp_over(x: np.ndarray) -> np.ndarray:

@@ -2,7 +2,7 @@
 
 :func:`rank_candidates` takes a design and a reference designator, keeps every
 placeable part of the merged library that can serve the position on every bus it sits
-on (:func:`pinlib.compare.can_serve`: the same pin functions, drives the position
+on (:func:`pinlib.studies.compare.can_serve`: the same pin functions, drives the position
 allows), evaluates the design with each in its place, and ranks them: by status
 (pass, then warn, then fail), then by the worst margin of the checks on those buses
 that the part can move (:data:`FIXED_CHECKS` count for the status only), a tie broken
@@ -12,12 +12,12 @@ matter for the bus (bus capacitance, rise time, low level and the pull-up chosen
 
 On an open-drain bus (I2C, SMBus) the candidates are evaluated together: the
 position's pin values are stacked into arrays and the bus goes through
-:func:`pinlib.buses.odbatch.build` once per group of candidates of the same structure
+:func:`pinlib.engines.opendrain.batch.build` once per group of candidates of the same structure
 (which pins drive, which carry pull-ups...), ``auto`` pull-ups chosen for each.  A
 position on a push-pull bus (SPI, GPIO), or a bridging part, is evaluated one
 candidate at a time by its engine, and the ranking says so.
 :func:`rank_candidates_slow` evaluates every candidate that way, with
-:meth:`pinlib.design.Design.with_parts` and :func:`pinlib.check.check_design`: the
+:meth:`pinlib.model.design.Design.with_parts` and :func:`pinlib.engines.dispatch.check_design`: the
 reference the tests hold the vectorized ranking to.
 
 Nothing here computes a figure: the engines do.
@@ -34,8 +34,8 @@ from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.progress import progress_bar
 from pinlib.core.quantity import format_si
-from pinlib.engines import odbatch as ob
 from pinlib.engines import opendrain as od
+from pinlib.engines.opendrain import batch as ob
 from pinlib.library.schema import CATEGORIES, Part
 from pinlib.model.design import Bus, Design, Device
 from pinlib.model.result import STATUSES, BusResult, worst
@@ -341,7 +341,7 @@ def _one(design: Design, ref: str, part: Part, places, buses=None):
 def rank_candidates_slow(design: Design, ref: str, *, categories=None,
                          progress=None) -> Ranking:
     """Rank the candidates of a position one at a time: the design rebuilt with each
-    (:meth:`~pinlib.design.Design.with_parts`) and its buses evaluated by their
+    (:meth:`~pinlib.model.design.Design.with_parts`) and its buses evaluated by their
     engines.  Same arguments and result as :func:`rank_candidates`."""
     places = _per_bus(positions(design, ref))
     parts, excluded = eligible(design, ref, categories)
@@ -408,7 +408,7 @@ def rank_candidates(design: Design, ref: str, *, categories=None, progress=None)
     categories : iterable of str, optional
         Only parts of these categories. [1]
     progress : bool, callable or None, optional
-        Progress bar (see :func:`pinlib.progress.progress_bar`). [1]
+        Progress bar (see :func:`pinlib.core.progress.progress_bar`). [1]
 
     Returns
     -------

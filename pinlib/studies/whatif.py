@@ -25,7 +25,7 @@ is ``k·Rp·Cb`` with its own Rp and Cb, and so on.  The stored part values (max
 pin capacitance, worst thresholds) stay what they are: they are limits, not spreads.
 
 Everything is vectorized: a batch of boards goes through
-:func:`pinlib.buses.odbatch.build` in one numpy pass, :data:`CHUNK` boards at a time.
+:func:`pinlib.engines.opendrain.batch.build` in one numpy pass, :data:`CHUNK` boards at a time.
 A run keeps what it reports, not every board: per check the counts of passing,
 warning and failing boards, the lowest and highest margin (and the worst board), a
 histogram of the margins in fixed bins (:class:`MarginHistogram`), and per bus and for
@@ -34,10 +34,10 @@ the first :data:`SENSITIVITY_BOARDS` boards are kept for the sensitivity fit and
 margin quantiles.  Memory so stays bounded (about 0.4 GB for 10^6 boards of the demo),
 and the boards are drawn from one stream in board order, so that no result depends
 on the chunk size; a run of at most :data:`SENSITIVITY_BOARDS` boards keeps every
-board as before.  Push-pull buses (SPI, GPIO) go through :func:`pinlib.buses.ppbatch.build`:
+board as before.  Push-pull buses (SPI, GPIO) go through :func:`pinlib.engines.ppbatch.build`:
 supplies, line lengths and extra line capacitance drawn; a large batch is evaluated from
 tables of the push-pull engine over the tolerance box, verified against the engine
-(:mod:`pinlib.buses.pptable`), a small one (and every corner) by the engine itself.
+(:mod:`pinlib.engines.pptable`), a small one (and every corner) by the engine itself.
 
 References
 ----------
@@ -60,9 +60,9 @@ from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.progress import progress_bar
 from pinlib.core.quantity import format_si
-from pinlib.engines import odbatch as ob
 from pinlib.engines import opendrain as od
 from pinlib.engines import ppbatch as ppb
+from pinlib.engines.opendrain import batch as ob
 from pinlib.model.design import Bus, Design, Segment
 
 __all__ = [
@@ -247,7 +247,7 @@ def parameters(design: Design, *, bus: str | None = None, collected=None) -> lis
     bus : str, optional
         Only this bus's parameters. [1]
     collected : dict, optional
-        :func:`pinlib.buses.opendrain.collect` of each bus by id, when at hand. [1]
+        :func:`pinlib.engines.opendrain.collect` of each bus by id, when at hand. [1]
 
     Returns
     -------
@@ -819,7 +819,7 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
         Seed of the random generator; the same seed gives the same boards.  Without
         one a fresh seed is drawn and reported, so the run can be repeated. [1]
     progress : bool, callable or None, optional
-        Progress bar (see :func:`pinlib.progress.progress_bar`). [1]
+        Progress bar (see :func:`pinlib.core.progress.progress_bar`). [1]
     chunk : int, optional
         Boards per numpy pass. [1]
 
@@ -856,7 +856,7 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
     u_kept = np.empty((kept, len(params)))
     stores: dict[str, _Tally] = {}
     board_ok = 0
-    # Push-pull buses: one table per bus for the whole run (pinlib.buses.pptable); a
+    # Push-pull buses: one table per bus for the whole run (pinlib.engines.pptable); a
     # normal draw is covered to 4σ (4/3 of the tolerance), boards beyond by the engine.
     tables: dict = {}
     span = 4.0 / 3.0 if design.distribution == "normal" else 1.0

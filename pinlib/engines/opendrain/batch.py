@@ -1,0 +1,477 @@
+"""The open-drain engine's checks, vectorized over a batch of variants of one bus.
+
+:func:`pinlib.engines.opendrain.evaluate_bus` evaluates one bus at its worst-case corners
+and explains every figure.  Studies over many variants of a bus — Monte Carlo samples and corners of
+its toleranced parameters (:mod:`pinlib.studies.whatif`), or every library part that could
+stand in one position (:mod:`pinlib.studies.candidates`) — need the same numbers for thousands
+of variants at once.  :func:`build` computes them in one numpy pass per bus: the
+*structure* of the bus (which pins drive and which receive, which part pull-ups exist)
+is fixed for a batch; every *value* may be an array over the batch.
+
+It shares the one-bus engine's rules and arithmetic (:mod:`.inputs`, :mod:`.arith`,
+:func:`.bridges.gate_drive`) and makes the same checks in the same order, without the
+messages, so that each
+variant's margins are the engine's; the tests hold it to that (a batch of candidates
+against :func:`pinlib.engines.dispatch.check_design` of each substituted design, and samples of a
+design without tolerances against its engine result).
+
+A :class:`Scenario` says what varies.  :class:`WorstCase` takes the engine's corners
+(each rail at ± its tolerance, the pull-ups at the end that hurts each check,
+capacitances at the top of their tolerance) and chooses ``auto`` pull-ups for every
+variant.  A sampled scenario (:class:`pinlib.studies.whatif.Sampled`) gives each variant its
+own rails, resistors and capacitances and evaluates it at that one point.
+
+Arrays are *batch columns*: shape ``(N, 1)``, or anything that broadcasts to it; the
+second axis holds the rail corners (two for :class:`WorstCase`, one for a sample).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+
+from pinlib.engines.opendrain.arith import fall_bounds, low_levels
+from pinlib.engines.opendrain.batchinputs import (
+    Level,
+    PinData,
+    Scenario,
+    TimingData,
+    WorstCase,
+    _choose,
+    _corner,
+    _couple,
+    _Line,
+    _line,
+    _Parts,
+    _Seg,
+    structure,
+)
+from pinlib.engines.opendrain.bridges import gate_drive
+from pinlib.engines.opendrain.inputs import (
+    _offset_side,
+    collect,
+)
+from pinlib.engines.opendrain.rules import (
+    SIGNALS,
+    _Link,
+    controller_of,
+    counted_clock,
+    data_sources,
+    delays,
+    links,
+    supply_margin,
+)
+from pinlib.library.schema import Part
+from pinlib.model.design import Bus, Design
+from pinlib.model.result import STATUSES, max_margin, min_margin, status_codes
+from pinlib.physics import pullup as pu
+
+__all__ = [
+    "STATUS",
+    "Level",
+    "PinData",
+    "TimingData",
+    "Scenario",
+    "WorstCase",
+    "BatchCheck",
+    "SegmentBatch",
+    "BusBatch",
+    "structure",
+    "build",
+]
+
+#: Status codes of :attr:`BatchCheck.status`, in order of severity (the index of each).
+STATUS = STATUSES
+
+#: Parts that load a line but read nothing on it (the engine's rule).
+_NOT_RECEIVERS = ("connector", "cable")
+
+
+# ============================================================================ checks
+
+
+@dataclass
+class BatchCheck:
+    """One check of the engine, for every variant of the batch.
+
+    Attributes
+    ----------
+    id : str
+        The engine's check id (``rise-time``...). [1]
+    segment : str
+        The segment id. [1]
+    signal : str or None
+        ``"SDA"``/``"SCL"`` for a check of one line. [1]
+    value, limit : numpy.ndarray or None
+        At the worst corner and element, shape ``(N,)``; None for a yes/no check. [unit]
+    margin : numpy.ndarray or None
+        Relative margin, shape ``(N,)``; None for a yes/no check. [1]
+    status : numpy.ndarray
+        Index into :data:`STATUS`, shape ``(N,)``. [1]
+    unit : str
+        Unit of value and limit. [1]
+    """
+
+    id: str
+    segment: str
+    signal: str | None
+    value: Any
+    limit: Any
+    margin: Any
+    status: Any
+    unit: str = ""
+
+    @property
+    def label(self) -> str:
+        return f"{self.id} {self.signal}" if self.signal else self.id
+
+
+@dataclass
+class SegmentBatch:
+    id: str
+    checks: list[BatchCheck] = field(default_factory=list)
+    figures: dict = field(default_factory=dict)
+
+
+@dataclass
+class BusBatch:
+    """The checks of one open-drain bus over a batch, segment by segment (in the
+    engine's order within each)."""
+
+    bus: str
+    n: int
+    segments: list[SegmentBatch] = field(default_factory=list)
+
+    def checks(self):
+        """Every check: (segment id, BatchCheck)."""
+        for s in self.segments:
+            for c in s.checks:
+                yield s.id, c
+
+
+class _Out:
+    def __init__(self, seg_id: str, n: int):
+        self.seg_id, self.n = seg_id, n
+        self.checks: list[BatchCheck] = []
+
+    def _n(self, x):
+        return np.broadcast_to(np.asarray(x, dtype=float).reshape(-1), (self.n,)) \
+            if np.size(x) in (1, self.n) else np.asarray(x, dtype=float).reshape(self.n)
+
+    def pick(self, id, signal, rows, warn, unit):
+        """The worst (row, corner) of margin arrays: ``rows`` of (margin, value, limit)
+        and optionally a per-row warning threshold."""
+        shape = np.broadcast_shapes(*[np.shape(a) for r in rows for a in r[:3]],
+                                    (self.n, 1))
+        if len(rows) == 1 and shape[1] == 1 and not isinstance(warn, (list, tuple)):
+            m, v, lim = (np.broadcast_to(a, shape)[:, 0] for a in rows[0][:3])
+            self.add(id, signal, v, lim, m, status_codes(m, warn), unit)
+            return
+        ms = np.stack([np.broadcast_to(r[0], shape) for r in rows], axis=1)
+        vs = np.stack([np.broadcast_to(r[1], shape) for r in rows], axis=1)
+        ls = np.stack([np.broadcast_to(r[2], shape) for r in rows], axis=1)
+        flat = ms.reshape(shape[0], -1)
+        idx = np.argmin(np.where(np.isnan(flat), -np.inf, flat), axis=1)[:, None]
+        margin = np.take_along_axis(flat, idx, axis=1)[:, 0]
+        value = np.take_along_axis(vs.reshape(shape[0], -1), idx, axis=1)[:, 0]
+        limit = np.take_along_axis(ls.reshape(shape[0], -1), idx, axis=1)[:, 0]
+        if isinstance(warn, (list, tuple)):
+            w = np.stack([np.broadcast_to(np.asarray(x, dtype=float).reshape(-1, 1)
+                                          if np.ndim(x) else x, (shape[0], 1))[:, 0]
+                          for x in warn], axis=1)
+            warn = np.take_along_axis(w, idx // shape[1], axis=1)[:, 0]
+        self.add(id, signal, value, limit, margin, status_codes(margin, warn), unit)
+
+    def add(self, id, signal, value, limit, margin, status, unit=""):
+        self.checks.append(BatchCheck(
+            id, self.seg_id, signal,
+            None if value is None else self._n(value),
+            None if limit is None else self._n(limit),
+            None if margin is None else self._n(margin),
+            np.broadcast_to(np.asarray(status, dtype=np.int8).reshape(-1), (self.n,))
+            if np.size(status) == 1 else np.asarray(status, dtype=np.int8).reshape(self.n),
+            unit))
+
+    def truth(self, id, signal, ok):
+        self.add(id, signal, None, None, None, np.where(np.asarray(ok), 0, 2))
+
+
+def _worst_max(x):
+    """Largest over the corner axis. [unit]"""
+    return np.max(x, axis=1, keepdims=True)
+
+
+def _far(s: _Seg, segs: list[_Seg], links: list[_Link], signal: str):
+    return [(link, segs[link.other].v, segs[link.other].r_lo(signal)) for link in links
+            if link.kind == "mosfet"]
+
+
+def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
+    lim, v, tol, up = ctx.lim, s.v, s.tol, ln.signal.upper()
+    warn = ctx.warn
+    r_eff = s.r_eff(ln.signal)
+    rp_lo, rp_hi = r_eff * (1 - tol), r_eff * (1 + tol)
+    figs[ln.signal] = f = {"bus_capacitance": ln.cb, "pullup": r_eff}
+    if lim.cb_max is not None:
+        out.pick("bus-capacitance", up, [(max_margin(ln.cb, lim.cb_max), ln.cb, lim.cb_max)], warn,
+                 "F")
+    m_lo, m_hi = pu.pullup_margins(ln.pullup, ln.rp_min, ln.rp_max, tol, ln.r_parts)
+    low = np.asarray(m_lo) <= np.asarray(m_hi)
+    out.pick("pullup-window", up, [(
+        np.where(low, min_margin(rp_lo, ln.rp_min), max_margin(rp_hi, ln.rp_max)),
+        np.where(low, rp_lo, rp_hi), np.where(low, ln.rp_min, ln.rp_max))], warn, "Ω")
+    tr = pu.rise_time(rp_hi, ln.cb, ln.factor)
+    f["rise_time"] = tr
+    out.pick("rise-time", up, [(max_margin(tr, lim.tr_max), tr, lim.tr_max)], warn, "s")
+    # -- low levels
+    far = _far(s, ctx.segs, ctx.links[s.index], ln.signal)
+    raw, offset_levels = low_levels(v, rp_lo, ln.drivers, far, ctx.segs, ln.signal)
+    levels = [(vb, i, d if link is None else None) for vb, i, d, link in raw]
+    f["v_ol"] = None
+    if levels:
+        shape = np.broadcast_shapes(*[lv[0].shape for lv in levels])
+        vol_bus = np.max(np.stack([np.broadcast_to(lv[0], shape) for lv in levels]), axis=0)
+        f["v_ol"] = _worst_max(vol_bus)
+        if ln.receivers:
+            out.pick("v-ol", up, [(max_margin(vol_bus, r.v_il), vol_bus, r.v_il)
+                                  for r in ln.receivers], warn, "V")
+            vil_min = _reduce(np.min, [r.v_il for r in ln.receivers])
+            nml = vil_min - vol_bus
+            if lim.v_nl_rel is not None:
+                limit = lim.v_nl_rel * v
+                out.pick("noise-margin-low", up, [(min_margin(nml, limit), nml, limit)], warn, "V")
+    if levels or offset_levels:
+        rows = [(i, d) for _, i, d in levels + offset_levels if d is not None]
+        if rows:
+            i_max = [_worst_max(i) for i, _ in rows]
+            ratio = [im / d.i_ol for im, (_, d) in zip(i_max, rows, strict=True)]
+            shape = np.broadcast_shapes(*[np.shape(r) for r in ratio], (ctx.n, 1))
+            k = np.argmax(np.stack([np.broadcast_to(r, shape)[:, 0] for r in ratio], axis=1),
+                          axis=1)[:, None]
+            im = np.take_along_axis(np.stack([np.broadcast_to(x, shape)[:, 0] for x in i_max],
+                                             axis=1), k, axis=1)
+            i_ol = np.take_along_axis(np.stack([np.broadcast_to(d.i_ol, shape)[:, 0]
+                                                for _, d in rows], axis=1), k, axis=1)
+            out.pick("sink-current", up, [(max_margin(im, i_ol), im, i_ol)], warn, "A")
+    # -- high level
+    voh = pu.high_level(v, rp_hi, ln.leakage)
+    if ln.receivers:
+        out.pick("v-oh", up, [(min_margin(voh, r.v_ih), voh, r.v_ih) for r in ln.receivers], warn,
+                 "V")
+        vih_max = _reduce(np.max, [r.v_ih for r in ln.receivers])
+        nmh = voh - vih_max
+        if lim.v_nh_rel is not None:
+            limit = lim.v_nh_rel * v
+            out.pick("noise-margin-high", up, [(min_margin(nmh, limit), nmh, limit)], warn, "V")
+    # -- fall time
+    falls = [_worst_max(t) for t, _, _ in fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far,
+                                                       ctx.segs, ln.signal)]
+    f["fall_time"] = None
+    if falls:
+        tf = _reduce(np.max, falls)
+        f["fall_time"] = tf
+        out.pick("fall-time", up, [(max_margin(tf, lim.tf_max), tf, lim.tf_max)], warn, "s")
+        tf_min = lim.tf_min(np.asarray(v[:, -1:], dtype=float))
+        if tf_min is not None:
+            for d in ln.drivers:
+                t_of = d.tap.pin.t_of_min
+                if t_of is not None:
+                    out.pick("fall-time-min", up, [(min_margin(t_of, tf_min), t_of, tf_min)], warn,
+                             "s")
+
+
+def _reduce(fn, arrays):
+    shape = np.broadcast_shapes(*[np.shape(a) for a in arrays])
+    return fn(np.stack([np.broadcast_to(a, shape) for a in arrays]), axis=0)
+
+
+
+def _segment_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
+    """Timing, voltage domains, power states and bridging parts of one segment."""
+    _timing_checks(ctx, s, out, figs)
+    taps = [t for sig in SIGNALS for t in s.lines[sig].taps]
+    _domain_checks(ctx, s, out, taps)
+    _bridge_checks(ctx, s, out)
+
+
+def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
+    """The clock against the mode, the slowest device, the SDA data setup."""
+    lim, warn, seg = ctx.lim, ctx.warn, s.seg
+    clock = ctx.clock
+    ctrl = ctx.controller
+    t_low = t_high = None
+    if ctrl is not None:
+        td = ctx.parts.timing(ctrl)
+        t_low, t_high = td.t_low, td.t_high
+    t_low, t_high = counted_clock(lim, clock, t_low, t_high)
+    out.pick("scl-frequency", None, [(max_margin(clock, lim.f_max), clock, lim.f_max)], 0.0, "Hz")
+    slow = [ctx.parts.timing(d).f_max for d in seg.devices
+            if not d.is_controller and not d.is_bridge and ctx.parts.timing(d).f_max is not None]
+    if slow:
+        f_dev = _reduce(np.min, slow)
+        out.pick("device-speed", None, [(min_margin(f_dev, clock), f_dev, clock)], 0.0, "Hz")
+    # -- SDA data setup
+    tr_sda = figs["sda"]["rise_time"]
+    def drives_sda(d, seg):
+        pin = ctx.parts.pins(d, "i2c-sda", seg.supply)
+        return pin is not None and pin.open_drain
+
+    rows = [ctx.parts.timing(d).t_vd_dat + extra for d, extra in data_sources(
+        s.index, ctx.ctrl_seg, [(o.index, o.seg) for o in ctx.segs], ctrl, ctx.delay,
+        drives_sda)]
+    if rows:
+        tvd = _reduce(np.max, rows)
+        budget = t_low - tvd - tr_sda
+        out.pick("setup-time", None,
+                 [(min_margin(budget, lim.t_su_dat), budget, lim.t_su_dat)], warn, "s")
+
+
+def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
+    """abs_max against the pull-up rail, supply ranges, power states."""
+    v, warn, seg = s.v, ctx.warn, s.seg
+    taps = [t for sig in SIGNALS for t in s.lines[sig].taps]
+    rows, warns = [], []
+    for t in taps:
+        if t.pin.abs_max is None:
+            continue
+        am = _corner(t.pin.abs_max, t, v, "min")
+        rows.append((max_margin(v, am), v, am))
+        follows = np.logical_and(not t.own, t.pin.abs_follows)
+        warns.append(np.where(follows, 0.0, warn))
+    if rows:
+        out.pick("input-voltage", None, rows, warns, "V")
+    rows, seen = [], set()
+    for t in taps:
+        if t.ref in seen:
+            continue
+        seen.add(t.ref)
+        if t.timing.supply is None:
+            continue
+        s_min, s_max = t.timing.supply
+        lo = t.rail.min(axis=1, keepdims=True)
+        hi = t.rail.max(axis=1, keepdims=True)
+        m, low_side = supply_margin(lo, hi, s_min, s_max)
+        rows.append((m, np.where(low_side, lo, hi), np.where(low_side, s_min, s_max)))
+    if rows:
+        out.pick("supply-range", None, rows, 0.0, "V")
+    # -- power states
+    for d in seg.devices:
+        if not d.switched:
+            continue
+        ok = np.asarray(True)
+        for t in taps:
+            if t.dev is d:
+                ok = np.logical_and(ok, t.pin.off_tolerant)
+        out.truth("power-off", None, ok)
+
+
+def _bridge_checks(ctx, s: _Seg, out: _Out) -> None:
+    """Gate drive of pass transistors; static-offset sides."""
+    v, warn, seg = s.v, ctx.warn, s.seg
+    offsets = []
+    for link in ctx.links[s.index]:
+        d = link.dev
+        if link.kind == "mosfet":
+            other = ctx.segs[link.other]
+            if seg.supply > other.seg.supply:
+                continue
+            br = d.part.bridge
+            if br.v_gs_th is not None:
+                over = v[:, :1] - float(br.v_gs_th.value)
+                margin, status = gate_drive(over)
+                out.add("bridge-gate-drive", None, over, 0.0, margin, status, "V")
+            continue
+        if _offset_side(d) == d.side:
+            offsets.append(d)
+    for d in offsets:
+        side = d.part.sides[d.side]
+        if side.low_offset is None:
+            continue
+        tap = next(t for t in s.lines["sda"].taps if t.dev is d)
+        off = _corner(Level.of(side.low_offset), tap, v, "max")
+        rows = [(max_margin(off, r.v_il), off, r.v_il) for sig in SIGNALS
+                for r in s.lines[sig].receivers if r.tap.dev.ref != d.ref]
+        if rows:
+            out.pick("bridge-offset", None, rows, warn, "V")
+    if offsets:
+        out.truth("bridge-offset-facing", None, len(offsets) < 2)
+
+
+class _Ctx:
+    pass
+
+
+def build(bus: Bus, design: Design, scenario: Scenario, *,
+          swap: tuple[str, Sequence[Part]] | None = None, collected=None) -> BusBatch:
+    """Evaluate an open-drain bus for every variant of a batch.
+
+    Parameters
+    ----------
+    bus : Bus
+        An ``i2c`` or ``smbus`` bus of ``design``. [1]
+    design : Design
+        The design (its warning threshold). [1]
+    scenario : Scenario
+        What varies: :class:`WorstCase` (the engine's corners), or samples. [1]
+    swap : (str, sequence of Part), optional
+        A reference designator and the parts to put there, one per variant; they must
+        share one :func:`structure`, and the position must not be a bridging part. [1]
+    collected : tuple, optional
+        :func:`pinlib.engines.opendrain.collect` of the bus, when already at hand. [1]
+
+    Returns
+    -------
+    BusBatch
+        Every check of every segment, each an array over the variants.
+
+    Raises
+    ------
+    InputError, DesignError
+        When the physics refuses a value (the engine raises the same for that
+        variant).
+    """
+    lim, seg_ins = collected if collected is not None else collect(bus, design)
+    n = int(scenario.n) if swap is None else len(swap[1])
+    parts = _Parts(lim, swap)
+    segs: list[_Seg] = []
+    for i, (seg, sin) in enumerate(zip(bus.segments, seg_ins, strict=True)):
+        v = np.asarray(scenario.rails(seg), dtype=float)
+        board = scenario.board(bus, seg, sin.lines["sda"].cb_parts)
+        lines = {sig: _line(bus, seg, sig, fn, v, parts, scenario, lim, board)
+                 for sig, fn in SIGNALS.items()}
+        s = _Seg(seg, i, v, scenario.spread(seg), lines)
+        if scenario.chooses:
+            _choose(s)
+        else:
+            for sig, ln in lines.items():
+                ln.pullup = scenario.resistor(bus, seg, sig, sin.pullup)
+        segs.append(s)
+    pairs = [(s.index, s.seg) for s in segs]
+    joins = links(pairs)
+    if any(ln.kind == "mosfet" for lst in joins.values() for ln in lst):
+        _couple(segs, joins, scenario)
+    ctx = _Ctx()
+    ctx.lim, ctx.segs, ctx.links, ctx.parts, ctx.n = lim, segs, joins, parts, n
+    ctx.warn = design.warn_margin
+    ctx.clock = bus.clock if bus.clock is not None else lim.f_max
+    ctx.controller, ctx.ctrl_seg = controller_of(bus, pairs)
+    ctx.delay = delays(ctx.ctrl_seg, joins)
+    result = BusBatch(bus.id, n)
+    for s in segs:
+        out = _Out(s.seg.id, n)
+        figs: dict = {}
+        for ln in s.lines.values():
+            _line_checks(ctx, s, ln, out, figs)
+        _segment_checks(ctx, s, out, figs)
+        sb = SegmentBatch(s.seg.id, out.checks)
+        for name in ("bus_capacitance", "rise_time", "v_ol", "fall_time"):
+            vals = [figs[sig][name] for sig in SIGNALS if figs[sig].get(name) is not None]
+            sb.figures[name] = (out._n(_reduce(np.max, [np.asarray(x).reshape(-1, 1)
+                                                         for x in vals])[:, 0])
+                                if vals else None)
+        sb.figures["pullup_resistor"] = out._n(np.asarray(s.lines["sda"].pullup, dtype=float))
+        result.segments.append(sb)
+    return result

@@ -1,0 +1,511 @@
+"""Pass 1 of the open-drain checks over arrays: a batch of variants of one bus.
+
+What varies is a :class:`Scenario` (the engine's corners, samples, candidate parts at
+one position); the *structure* of the bus (which pins drive and which receive, which
+part pull-ups exist) is fixed for a batch and every *value* may be a batch column of
+shape ``(N, 1)`` (or anything that broadcasts to it; the second axis holds the rail
+corners).  The joins between segments, the bridge delays, the controller's segment,
+Rp(max) and the ``auto`` rule's margins are those of :mod:`.inputs`.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import Any, NamedTuple
+
+import numpy as np
+
+from pinlib.core.quantity import Threshold
+from pinlib.engines.limits import OpenDrainLimits
+from pinlib.engines.opendrain.inputs import _offset_side
+from pinlib.engines.opendrain.rules import (
+    _NOT_RECEIVERS,
+    SIGNALS,
+    _Link,
+    abs_max_follows,
+    auto_margins,
+    coupled_sinks,
+    part_is_mosfet,
+    pin_rules,
+    rp_max_of,
+    rp_min_of,
+)
+from pinlib.library.schema import Part
+from pinlib.model.design import Bus, Device, Segment
+from pinlib.physics import pullup as pu
+
+# ============================================================================ values
+
+
+class Level(NamedTuple):
+    """A threshold over the batch: ``scale·VDD + offset``.
+
+    Attributes
+    ----------
+    scale : float or numpy.ndarray
+        Fraction of the part's own supply. [1]
+    offset : float or numpy.ndarray
+        Fixed part. [V]
+    """
+
+    scale: Any
+    offset: Any
+
+    def at(self, vdd):
+        """The level at a supply (any shape that broadcasts with the batch). [V]"""
+        return self.scale * vdd + self.offset
+
+    @classmethod
+    def of(cls, value) -> Level:
+        """From a :class:`~pinlib.library.values.Sourced` level or voltage."""
+        v = value.value
+        if type(v) is Threshold or isinstance(v, Threshold):
+            return cls(v.scale, v.offset)
+        return cls(0.0, float(v))
+
+
+@dataclass
+class PinData:
+    """One pin as the engine reads it, defaults filled in, values over the batch.
+
+    ``driver``, ``receiver``, ``open_drain`` and whether the optional values are present
+    are structure (the same for the whole batch); the rest may be batch columns.
+    """
+
+    name: str
+    open_drain: bool
+    driver: bool
+    receiver: bool
+    c_in: Any              # [F]; the specification's maximum when the part states none
+    leakage: Any           # [A]; 0 for a part that reads nothing and states none
+    v_ol: Level            # [V] with i_ol; the specification's sink when not stated
+    i_ol: Any              # [A]
+    v_il: Level            # [V]
+    v_ih: Level            # [V]
+    abs_max: Level | None  # [V]
+    abs_follows: Any       # abs_max written as VDD + a non-negative offset
+    pullup: Any | None     # [Ω] a resistor the part carries
+    pullup_internal: Any | None  # [Ω] counted only when the design enables it
+    off_tolerant: Any
+    t_of_min: Any | None   # [s]
+
+
+@dataclass
+class TimingData:
+    """A part's timing and supply range as the engine reads them, over the batch."""
+
+    f_max: Any | None      # [Hz]
+    t_vd_dat: Any          # [s]; the specification's when not stated
+    t_low: Any | None      # [s]
+    t_high: Any | None     # [s]
+    supply: tuple | None   # (min, max) [V] of the device's side
+
+
+def _pin_data(pin, name: str, part: Part, dev: Device, lim: OpenDrainLimits,
+              vdd: float, defaults=None) -> PinData:
+    driver, receiver, leak = pin_rules(pin, part, lim)
+    (d_vol, d_iol, _), (d_il, d_ih) = defaults or (lim.default_sink(vdd), lim.default_levels())
+    abs_max = follows = None
+    if pin.abs_max is not None:
+        abs_max = Level.of(pin.abs_max)
+        follows = abs_max_follows(pin)
+    internal = None
+    if dev.internal_pullups and pin.pullup_internal is not None:
+        internal = float(pin.pullup_internal.value)
+    return PinData(
+        name=name,
+        open_drain=pin.drive == "open-drain",
+        driver=driver,
+        receiver=receiver,
+        c_in=float(pin.c_in.value) if pin.c_in is not None else lim.c_pin,
+        leakage=leak if leak is not None else 0.0,
+        v_ol=Level.of(pin.v_ol if pin.v_ol is not None else d_vol),
+        i_ol=float((pin.i_ol if pin.i_ol is not None else d_iol).value),
+        v_il=Level.of(pin.v_il if pin.v_il is not None else d_il),
+        v_ih=Level.of(pin.v_ih if pin.v_ih is not None else d_ih),
+        abs_max=abs_max,
+        abs_follows=follows,
+        pullup=float(pin.pullup.value) if pin.pullup is not None else None,
+        pullup_internal=internal,
+        off_tolerant=bool(pin.off_tolerant),
+        t_of_min=float(pin.t_of_min.value) if pin.t_of_min is not None else None,
+    )
+
+
+def _timing_data(part: Part, dev: Device, lim: OpenDrainLimits) -> TimingData:
+    t = part.timing
+    sup = part.supply_for(dev.side)
+    return TimingData(
+        f_max=float(t.f_max.value) if t.f_max is not None else None,
+        t_vd_dat=float(t.t_vd_dat.value) if t.t_vd_dat is not None else lim.t_vd_dat,
+        t_low=float(t.t_low.value) if t.t_low is not None else None,
+        t_high=float(t.t_high.value) if t.t_high is not None else None,
+        supply=(float(sup.min.value), float(sup.max.value)) if sup is not None else None,
+    )
+
+
+def _stack(items: list):
+    """Many per-part records (same structure) -> one record of batch columns."""
+    first = items[0]
+    if len(items) == 1 or first is None or isinstance(first, str):
+        return first  # a pin name is kept for labels only
+    if isinstance(first, Level):
+        return Level(_stack([x.scale for x in items]), _stack([x.offset for x in items]))
+    if isinstance(first, (PinData, TimingData)):
+        return type(first)(**{k: getattr(first, k) if k in _STRUCTURAL else
+                              _stack([getattr(x, k) for x in items])
+                              for k in first.__dataclass_fields__})
+    if isinstance(first, tuple):
+        return tuple(_stack([x[i] for x in items]) for i in range(len(first)))
+    kind = bool if isinstance(first, (bool, np.bool_)) else float
+    return np.array(items, dtype=kind)[:, None]
+
+
+_STRUCTURAL = ("open_drain", "driver", "receiver")
+
+
+def structure(part: Part, dev: Device, bus: Bus, lim: OpenDrainLimits | None = None) -> tuple:
+    """What of a part at a device's position shapes the batch (parts with equal
+    structure are evaluated together).
+
+    Parameters
+    ----------
+    part : Part
+        A plain (non-bridging) part. [1]
+    dev : Device
+        The position: its side, its switches (internal pull-ups). [1]
+    bus : Bus
+        An open-drain bus the position is on. [1]
+    lim : OpenDrainLimits, optional
+        Not needed; kept for symmetry with :func:`build`. [1]
+    """
+    mosfet = part.bridge is not None and part.bridge.kind == "mosfet"
+    quiet = part.category in _NOT_RECEIVERS or mosfet
+    key = []
+    for fn in SIGNALS.values():
+        got = part.pin_for(fn, None)
+        if got is None:
+            key.append(None)
+            continue
+        pin = got[1]
+        od_ = pin.drive == "open-drain"
+        key.append((od_, od_ and not mosfet,
+                    pin.v_il is not None or pin.v_ih is not None or not quiet,
+                    pin.abs_max is None, pin.pullup is None,
+                    not (dev.internal_pullups and pin.pullup_internal is not None),
+                    pin.t_of_min is None))
+    t = part.timing
+    key.append((t.f_max is None, t.t_low is None, t.t_high is None,
+                part.supply_for(dev.side) is None))
+    return tuple(key)
+
+
+# ============================================================================ scenarios
+
+
+class Scenario:
+    """What varies across a batch of variants (the engine's corners, or samples).
+
+    Subclasses give every quantity the engine takes from the design as a batch column;
+    ``n`` is the batch size and ``chooses`` says whether ``auto`` pull-ups are chosen
+    for each variant (the engine's rule) or taken from :meth:`resistor`.
+    """
+
+    n: int = 1
+    chooses: bool = True
+
+    def rails(self, seg: Segment):
+        """The pull-up rail, shape ``(N, corners)``. [V]"""
+        raise NotImplementedError
+
+    def tap_rail(self, vdd: float, seg: Segment):
+        """The points of a device's rail of nominal ``vdd`` (``(N, K)``; the worst is
+        taken over K). [V]"""
+        raise NotImplementedError
+
+    def pin_factor(self, dev: Device, bus: Bus):
+        """Factor on a device's pin capacitances. [1]"""
+        raise NotImplementedError
+
+    def board(self, bus: Bus, seg: Segment, parts: dict):
+        """Traces, cables and extra capacitance of a segment, from the engine's. [F]"""
+        raise NotImplementedError
+
+    def series(self, bus: Bus, seg: Segment, dev: Device, signal: str):
+        """A device's series resistor on a line (0 for none). [Ω]"""
+        raise NotImplementedError
+
+    def contributor(self, bus: Bus, seg: Segment, signal: str, index: int, value: float):
+        """A pull-up a part carries (the ``index``-th on the line). [Ω]"""
+        raise NotImplementedError
+
+    def resistor(self, bus: Bus, seg: Segment, signal: str, nominal: float):
+        """The design's pull-up on a line, when not chosen per variant. [Ω]"""
+        raise NotImplementedError
+
+    def spread(self, seg: Segment) -> float:
+        """The tolerance applied to the effective pull-up in each check. [1]"""
+        raise NotImplementedError
+
+
+class WorstCase(Scenario):
+    """The engine's corners: rails at ± their tolerance, pull-ups at the end that hurts
+    each check, capacitances at the top of their tolerance; ``auto`` pull-ups chosen
+    for every variant.
+
+    Parameters
+    ----------
+    n : int
+        Batch size (the number of candidate parts, say). [1]
+    """
+
+    chooses = True
+
+    def __init__(self, n: int = 1):
+        self.n = int(n)
+
+    def rails(self, seg):
+        t = seg.supply_tolerance
+        return np.array([[seg.supply * (1 - t), seg.supply * (1 + t)]])
+
+    def tap_rail(self, vdd, seg):
+        t = seg.supply_tolerance
+        return np.array([[vdd * (1 - t), vdd * (1 + t)]])
+
+    def pin_factor(self, dev, bus):
+        return 1.0 + (dev.capacitance_tolerance or 0.0)
+
+    def board(self, bus, seg, parts):
+        return parts["traces"], parts["cables"], parts["extra"]
+
+    def series(self, bus, seg, dev, signal):
+        return dev.series_resistor or 0.0
+
+    def contributor(self, bus, seg, signal, index, value):
+        return value
+
+    def resistor(self, bus, seg, signal, nominal):
+        return nominal
+
+    def spread(self, seg):
+        return seg.pullup_tolerance
+
+
+# ============================================================================ batch inputs
+
+
+@dataclass
+class _Tap:
+    dev: Device
+    part: Part | None      # None for the substituted position (values in `pin`)
+    pin: PinData
+    timing: TimingData
+    vdd: float
+    own: bool
+    mosfet: bool
+    rail: Any              # the points of its rail, (N, K)
+
+    @property
+    def ref(self) -> str:
+        return self.dev.ref
+
+
+@dataclass
+class _Driver:
+    tap: _Tap
+    v_ol: Any
+    i_ol: Any
+    r_on: Any
+    r_series: Any
+    offset: Any = None
+
+
+@dataclass
+class _Receiver:
+    tap: _Tap
+    v_il: Any
+    v_ih: Any
+
+
+@dataclass
+class _Line:
+    signal: str
+    taps: list
+    cb: Any
+    leakage: Any
+    drivers: list
+    receivers: list
+    r_parts: Any
+    rp_min: Any
+    rp_max: Any
+    factor: Any
+    pullup: Any = None     # the design resistor on this line
+
+
+@dataclass
+class _Seg:
+    seg: Segment
+    index: int
+    v: Any
+    tol: float
+    lines: dict
+
+    def r_eff(self, signal):
+        return pu.parallel(self.lines[signal].pullup, self.lines[signal].r_parts)
+
+    def r_lo(self, signal):
+        return self.r_eff(signal) * (1 - self.tol)
+
+
+
+def _corner(level: Level, tap: _Tap, v, worst: str):
+    """A level at the rail corners: following the pull-up rail, or the worst end of the
+    device's own rail (the engine's ``_corner_values``). [V]"""
+    if not tap.own:
+        return level.at(v)
+    vals = level.at(tap.rail)
+    red = vals.min(axis=1, keepdims=True) if worst == "min" else vals.max(axis=1, keepdims=True)
+    return np.broadcast_to(red, np.broadcast_shapes(red.shape, np.shape(v)))
+
+
+
+class _Parts:
+    """Pin and timing data of each device, the substituted position stacked."""
+
+    def __init__(self, lim, swap):
+        self.lim = lim
+        self.ref, self.parts = swap if swap else (None, None)
+        self._timing: dict = {}
+        self._pins: dict = {}
+        self._defaults: dict = {}
+
+    def part_of(self, dev: Device) -> Part | None:
+        return None if dev.ref == self.ref else dev.part
+
+    def pins(self, dev: Device, function: str, vdd: float):
+        key = (dev.ref, dev.side, function, vdd)
+        if key in self._pins:
+            return self._pins[key]
+        parts = self.parts if dev.ref == self.ref else [dev.part]
+        side = None if dev.ref == self.ref else dev.side
+        found = [p.pin_for(function, side) for p in parts]
+        if found[0] is None:
+            self._pins[key] = None
+            return None
+        if vdd not in self._defaults:
+            self._defaults[vdd] = (self.lim.default_sink(vdd), self.lim.default_levels())
+        d = self._defaults[vdd]
+        out = self._pins[key] = _stack([_pin_data(pin, name, p, dev, self.lim, vdd, d)
+                                        for (name, pin), p in zip(found, parts, strict=True)])
+        return out
+
+    def timing(self, dev: Device) -> TimingData:
+        key = (dev.ref, dev.side)
+        if key not in self._timing:
+            parts = self.parts if dev.ref == self.ref else [dev.part]
+            self._timing[key] = _stack([_timing_data(p, dev, self.lim) for p in parts])
+        return self._timing[key]
+
+
+def _taps(seg: Segment, function: str, parts: _Parts, scen: Scenario) -> list[_Tap]:
+    out = []
+    for d in seg.devices:
+        own = d.supply is not None and not math.isclose(d.supply, seg.supply, rel_tol=1e-9)
+        vdd = d.supply if own else seg.supply
+        pin = parts.pins(d, function, vdd)
+        if pin is None:
+            continue
+        part = parts.part_of(d)
+        out.append(_Tap(d, part, pin, parts.timing(d), vdd, own, part_is_mosfet(part),
+                        scen.tap_rail(vdd, seg)))
+    return out
+
+
+def _line(bus, seg, signal, function, v, parts, scen, lim, board) -> _Line:
+    taps = _taps(seg, function, parts, scen)
+    c_pins = 0.0
+    for t in taps:
+        c_pins = c_pins + t.pin.c_in * scen.pin_factor(t.dev, bus)
+    traces, cables, extra = board
+    cb = c_pins + traces + cables + extra
+    leak = 0.0
+    for t in taps:
+        leak = leak + t.pin.leakage
+    drivers = []
+    for t in taps:
+        if not t.pin.driver:
+            continue
+        v_ol = _corner(t.pin.v_ol, t, v, "max")
+        i_ol = t.pin.i_ol
+        offset = None
+        if t.part is not None and t.dev.side is not None and _offset_side(t.dev) == t.dev.side:
+            side = t.part.sides[t.dev.side]
+            if side.low_offset is not None:
+                offset = np.max(_corner(Level.of(side.low_offset), t, v, "max"), axis=1,
+                                keepdims=True)
+        drivers.append(_Driver(t, v_ol, i_ol, v_ol / i_ol,
+                               scen.series(bus, seg, t.dev, signal), offset))
+    receivers = [_Receiver(t, _corner(t.pin.v_il, t, v, "min"), _corner(t.pin.v_ih, t, v, "max"))
+                 for t in taps if t.pin.receiver]
+    contributors = []
+    for t in taps:
+        for value in (t.pin.pullup, t.pin.pullup_internal):
+            if value is not None:
+                contributors.append(scen.contributor(bus, seg, signal, len(contributors), value))
+    r_parts = pu.parallel(*contributors) if contributors else math.inf
+    v_max = v[:, -1:]
+    best = 0.0
+    for d in drivers:
+        best = np.maximum(best, rp_min_of(v_max, d.v_ol[:, -1:], d.i_ol))
+    rp_min = np.where(np.asarray(best) > 0, best, 1e-3)
+    factor = lim.rise_factor(v[:, :1])
+    rp_max = rp_max_of(lim, factor, cb)
+    return _Line(signal, taps, cb, leak, drivers, receivers, r_parts, rp_min, rp_max, factor)
+
+
+def _choose(s: _Seg) -> None:
+    """The engine's ``auto`` rule for every variant: the series value with the largest
+    smaller tolerance-adjusted margin to Rp(min) and Rp(max) on both lines."""
+    seg = s.seg
+    if seg.pullup != "auto":
+        for ln in s.lines.values():
+            ln.pullup = float(seg.pullup)
+        return
+    cand, worst = auto_margins(seg.pullup_series, s.lines.values(), s.tol)
+    chosen = cand[0, np.argmax(worst, axis=1)][:, None]
+    for ln in s.lines.values():
+        ln.pullup = chosen
+
+
+def _rp_min_coupled(s: _Seg, signal: str, segs: list[_Seg], links: list[_Link]):
+    """Rp(min) of a segment joined to others through pass transistors (the engine's)."""
+    far = [(link, segs[link.other].v[:, -1:], segs[link.other].r_lo(signal))
+           for link in links if link.kind == "mosfet"]
+    best = np.asarray(1e-3)
+    for r, _, _ in coupled_sinks(s.v[:, -1:], s.lines[signal].drivers, far, segs, signal,
+                                 lambda x: x[:, -1:]):
+        best = np.where(r > best, r, best)
+    return best
+
+
+def _couple(segs: list[_Seg], links: dict[int, list[_Link]], scen: Scenario) -> None:
+    coupled = [s for s in segs if any(ln.kind == "mosfet" for ln in links[s.index])]
+    if not scen.chooses:
+        for s in coupled:
+            for sig, ln in s.lines.items():
+                ln.rp_min = _rp_min_coupled(s, sig, segs, links[s.index])
+        return
+    # the engine re-chooses each segment against the others' present values, at most 8
+    # rounds; a variant that settled stays settled, so the rounds run until none moves
+    for _ in range(8):
+        changed = False
+        for s in coupled:
+            for sig, ln in s.lines.items():
+                ln.rp_min = _rp_min_coupled(s, sig, segs, links[s.index])
+            before = s.lines["sda"].pullup
+            _choose(s)
+            changed |= bool(np.any(s.lines["sda"].pullup != before))
+        if not changed:
+            break
+

@@ -1,0 +1,173 @@
+"""Explanations of the open-drain engine: advice for a pull-up window that fails, and
+the figures and notes of a segment, drawn from the same inputs the checks use."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from pinlib.core import eseries
+from pinlib.engines.limits import OpenDrainLimits
+from pinlib.engines.opendrain.inputs import (
+    LineInputs,
+    SegmentInputs,
+    _f,
+)
+from pinlib.engines.opendrain.rules import (
+    SIGNALS,
+)
+from pinlib.model.result import Group
+from pinlib.physics import pullup as pu
+
+
+def _series_range(series: str, lo: float, hi: float) -> str:
+    if not (0 < lo <= hi and math.isfinite(lo)):
+        return ""
+    hi_c = min(hi, 1e9)
+    vals = eseries.values_in_range(series, lo, hi_c) if hi_c >= lo else np.array([])
+    if vals.size == 0:
+        return f"no {series} value lies in it"
+    shown = ", ".join(_f(x, "Ω") for x in vals[:6]) + (" …" if vals.size > 6 else "")
+    return f"{series}: {shown}"
+
+
+def window_advice(lim: OpenDrainLimits, seg_in: SegmentInputs, ln: LineInputs, m_lo: float,
+                   m_hi: float) -> str:
+    """What would make the pull-up window work, quantified."""
+    tol = seg_in.tol
+    eff_lo, eff_hi = ln.rp_min / (1 - tol), ln.rp_max / (1 + tol)
+    tips: list[str] = []
+    # 1. every contributor in parallel below Rp(min): which of the parts' own to remove
+    if ln.part_pullups and m_lo < 0:
+        keep = sorted(ln.part_pullups, key=lambda p: p["value"])
+        removed = []
+
+        def fits(rest) -> bool:
+            r_rest = float(pu.parallel(*[p["value"] for p in rest])) if rest else math.inf
+            if seg_in.auto:  # the resistor will be re-chosen: the parts must leave room
+                return r_rest > eff_lo
+            return float(pu.parallel(seg_in.pullup, r_rest)) >= eff_lo
+
+        while keep and not fits(keep):
+            removed.append(keep.pop(0))
+        if removed and fits(keep):
+            names = ", ".join(f"{p['ref']} {p['pin'].upper()} ({_f(p['value'], 'Ω')}, "
+                              f"{p['kind']})" for p in removed)
+            now = ln.r_parts if seg_in.auto else float(pu.parallel(seg_in.pullup, ln.r_parts))
+            what = "the parts' own pull-ups in parallel give" if seg_in.auto else \
+                "every pull-up in parallel gives"
+            tips.append(f"{what} {_f(now, 'Ω')}, below Rp(min) "
+                        f"{_f(ln.rp_min, 'Ω')}: remove or disable {names}")
+    if eff_lo <= eff_hi:
+        # the window exists: the value is outside it
+        if math.isfinite(ln.r_parts):
+            r_q = ln.r_parts
+
+            def need(eff):
+                return math.inf if eff >= r_q else eff * r_q / (r_q - eff)
+
+            lo_r, hi_r = need(eff_lo), need(eff_hi)
+        else:
+            lo_r, hi_r = eff_lo, eff_hi
+        if lo_r <= hi_r and math.isfinite(lo_r):
+            tips.append(f"a design resistor between {_f(lo_r, 'Ω')} and "
+                        f"{_f(hi_r, 'Ω') if math.isfinite(hi_r) else 'no upper limit'} fits "
+                        f"({_series_range(seg_in.segment.pullup_series, lo_r, hi_r)})")
+        return "; ".join(tips)
+    return "; ".join(tips + _no_fit_advice(lim, seg_in, ln))
+
+
+def _no_fit_advice(lim: OpenDrainLimits, seg_in: SegmentInputs, ln: LineInputs) -> list[str]:
+    """Quantified ways out when no passive pull-up fits the window."""
+    tol = seg_in.tol
+    v_max = float(seg_in.vdd[1])
+    eff_lo = ln.rp_min / (1 - tol)
+    tips: list[str] = []
+    # 2. no passive pull-up fits: quantified ways out
+    if not math.isfinite(ln.rp_min):
+        tips.append(f"the weakest sink ({ln.rp_min_label}) cannot even carry the current the "
+                    "pull-ups across the translator already draw: raise those pull-ups, or use "
+                    "drivers with a larger rating or an active translator")
+        return tips
+    factor = ln.rise_factor
+    cb_lim = float(pu.cb_limit(lim.tr_max, ln.rp_min, tol, factor))
+    tips.append(f"no resistor fits: Rp(min) {_f(ln.rp_min, 'Ω')} (weakest sink "
+                f"{ln.rp_min_label or '—'}) is above Rp(max) "
+                f"{_f(ln.rp_max, 'Ω')} at Cb {_f(ln.cb, 'F')}")
+    tips.append(f"bring Cb below {_f(cb_lim, 'F')} (now {_f(ln.cb, 'F')}: "
+                f"{_f(ln.cb - cb_lim, 'F')} less: shorter traces or cable, fewer loads)")
+    lower = lim.lower()
+    if lower is not None:
+        f_low = float(lower.rise_factor(float(seg_in.vdd[0])))
+        rpmax_low = lower.tr_max / (f_low * ln.cb)
+        if ln.rp_min * (1 + tol) / (1 - tol) <= rpmax_low:
+            fitting = _series_range(seg_in.segment.pullup_series, eff_lo, rpmax_low / (1 + tol))
+            tips.append(f"{lower.label} (tr ≤ {_f(lower.tr_max, 's')}, "
+                        f"{_f(lower.f_max, 'Hz')}) allows Rp up to {_f(rpmax_low, 'Ω')}: "
+                        f"{fitting}")
+        else:
+            tips.append(f"even {lower.label} allows only {_f(rpmax_low, 'Ω')}")
+    n = max(2, math.ceil(ln.cb / cb_lim)) if cb_lim > 0 else 2
+    tips.append(f"a bus buffer splitting the bus into {n} segments of under {_f(cb_lim, 'F')} each")
+    v_lo, v_hi = lim.measuring_levels(float(seg_in.vdd[1]))
+    i_cs = float(pu.current_source_needed(ln.cb, float(v_lo), float(v_hi), lim.tr_max))
+    weakest = ln.rp_min_driver.i_ol if ln.rp_min_driver else math.nan
+    ok_cs = "" if i_cs < weakest else f" — more than the weakest sink's {_f(weakest, 'A')}"
+    tips.append(f"an active (current-source) pull-up of at least {_f(i_cs, 'A')} "
+                f"(UM10204 rev. 6 §5.1){ok_cs}")
+    if ln.rp_min_driver is not None:
+        d = ln.rp_min_driver
+        i_need = float(pu.sink_current_needed(v_max, float(d.v_ol[1]), ln.rp_max, tol))
+        tips.append(f"drivers sinking at least {_f(i_need, 'A')} at {_f(float(d.v_ol[1]), 'V')} "
+                    f"(the weakest, {d.tap.label}, is rated {_f(d.i_ol, 'A')})")
+    return tips
+
+
+_WORST = {"bus_capacitance": max, "pullup": min, "rp_min": max, "rp_max": min, "rise_time": max,
+          "rise_time_10_90": max, "fall_time": max, "v_ol": max, "v_oh": min,
+          "noise_margin_low": min, "noise_margin_high": min, "pullup_power": max}
+_UNITS = {"bus_capacitance": "F", "pullup": "Ω", "rp_min": "Ω", "rp_max": "Ω", "rise_time": "s",
+          "rise_time_10_90": "s", "fall_time": "s", "v_ol": "V", "v_oh": "V",
+          "noise_margin_low": "V", "noise_margin_high": "V", "pullup_power": "W"}
+
+
+def segment_figures(grp: Group, seg_in: SegmentInputs, per_line: dict) -> None:
+    """A segment's figures: the worse of the two lines, then each line's own."""
+    figs = {}
+    for name, pick in _WORST.items():
+        vals = [per_line[s].get(name) for s in SIGNALS]
+        vals = [x for x in vals if x is not None]
+        figs[name] = pick(vals) if vals else None
+    for name in ("bus_capacitance", "rise_time", "fall_time", "pullup"):
+        for sig in SIGNALS:
+            figs[f"{name}_{sig}"] = per_line[sig].get(name)
+    for name, value in figs.items():
+        base = name.rsplit("_sda", 1)[0].rsplit("_scl", 1)[0]
+        grp.figure(name, value, _UNITS.get(base, _UNITS.get(name, "")))
+    grp.figure("supply", seg_in.segment.supply, "V")
+    grp.figure("pullup_resistor", seg_in.pullup, "Ω")
+    grp.figure("rise_factor", seg_in.lines["sda"].rise_factor, "")
+
+
+def segment_notes(grp: Group, lim: OpenDrainLimits, seg_in: SegmentInputs) -> None:
+    """A segment's notes: the rise definition, the chosen pull-up, the contributors in
+    parallel, the trace capacitance, and every default taken for a value not stated."""
+    if lim.rise_definition == "smbus":
+        grp.notes.insert(0, f"rise and fall times follow the SMBus definition: {lim.rise_text}; "
+                            "rise_time_10_90 is 10–90 % of VDD")
+    if seg_in.auto:
+        grp.notes.append(f"pull-up chosen from {seg_in.segment.pullup_series}: "
+                         f"{_f(seg_in.pullup, 'Ω')} (±{seg_in.tol:.0%}), the value with the "
+                         "largest smaller margin to Rp(min) and Rp(max) on both lines")
+    for sig, ln in seg_in.lines.items():
+        if ln.part_pullups:
+            parts = "; ".join(f"{p['ref']} {p['pin']} {_f(p['value'], 'Ω')} ({p['kind']})"
+                              for p in ln.part_pullups)
+            grp.notes.append(f"{sig.upper()} pull-up contributors in parallel: design resistor "
+                             f"{_f(seg_in.pullup, 'Ω')}; {parts} → {_f(seg_in.r_eff(sig), 'Ω')}")
+    if seg_in.cb_notes:
+        grp.notes.append("trace capacitance: " + "; ".join(dict.fromkeys(seg_in.cb_notes)))
+    grp.notes.extend(seg_in.notes)
+    for text, where in seg_in.defaults.items():
+        grp.notes.append(f"{text}: {', '.join(where)}")

@@ -1,0 +1,471 @@
+"""Pass 1 of the open-drain engine: what each line of each segment is made of.
+
+For every segment and each line (SDA, SCL) :func:`collect` gathers the pins on it (with
+their parts' limits, or the specification's when a part states none), the bus
+capacitance (pins, traces, cables, extra), the leakage, the pull-ups the parts carry and
+the window Rp(min)..Rp(max); it picks the pull-up (``pullup = "auto"``) or takes the
+design's, and joins segments linked by pass transistors.  The rules it applies are
+those of :mod:`.rules`, which the array checks of :mod:`.batch` apply too.
+"""
+
+from __future__ import annotations
+
+import math
+import warnings
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from pinlib.core import messages as M
+from pinlib.core.errors import DesignError, ValidityWarning
+from pinlib.core.quantity import format_si
+from pinlib.engines.limits import OpenDrainLimits, limits_for
+from pinlib.engines.opendrain.rules import (
+    SIGNALS,
+    _Link,
+    auto_margins,
+    coupled_sinks,
+    links,
+    part_is_mosfet,
+    pin_rules,
+    rp_max_of,
+    rp_min_of,
+)
+from pinlib.library.schema import Pin
+from pinlib.library.values import Sourced
+from pinlib.model.design import Bus, Design, Device, Section, Segment
+from pinlib.physics import lines as line_models
+from pinlib.physics import pullup as pu
+
+
+def _f(x, unit):
+    return format_si(x, unit)
+
+
+# ============================================================================ inputs
+
+
+@dataclass
+class _Tap:
+    """One device pin on one line."""
+
+    dev: Device
+    pin_name: str
+    pin: Pin
+    vdd: float          # the device's rail, nominal [V]
+    own: bool           # on its own rail (not the pull-up rail)
+
+    @property
+    def ref(self) -> str:
+        return self.dev.ref
+
+    @property
+    def label(self) -> str:
+        side = f" side {self.dev.side}" if self.dev.side else ""
+        return f"{self.dev.ref}{side}"
+
+    def source(self, field_name: str) -> str:
+        value = getattr(self.pin, field_name)
+        where = f"{self.dev.part_id} pins.{self.pin_name}.{field_name}"
+        bits = [b for b in (getattr(value, "basis", None), getattr(value, "source", None)) if b]
+        if not bits:
+            prov = self.dev.part.provenance
+            bits = [b for b in (prov.basis, prov.source) if b]
+        return f"{where} ({': '.join(bits)})" if bits else where
+
+
+@dataclass
+class _Driver:
+    tap: _Tap
+    v_ol: np.ndarray        # guaranteed low level at i_ol, per corner [V]
+    i_ol: float             # [A]
+    r_on: np.ndarray        # v_ol / i_ol, per corner [Ω]
+    r_series: float         # [Ω]
+    source_i: str
+    offset: float | None = None   # static low-offset level of a repeater side [V]
+
+
+@dataclass
+class _Receiver:
+    tap: _Tap
+    v_il: np.ndarray        # per corner [V]
+    v_ih: np.ndarray        # per corner [V]
+    source: str
+
+
+@dataclass
+class LineInputs:
+    """What one line of one segment is made of (pass 1 of the engine).
+
+    Attributes
+    ----------
+    signal : str
+        ``"sda"`` or ``"scl"``.
+    cb : float
+        Bus capacitance, every contribution at its maximum. [F]
+    cb_parts : dict
+        The contributions: ``pins``, ``traces``, ``cables``, ``extra``. [F]
+    leakage : float
+        Sum of the pins' leakage. [A]
+    rp_min, rp_max : float
+        The pull-up window (UM10204 eq. 2 and eq. 1, or the SMBus factor). [Ω]
+    r_parts : float
+        The parts' own pull-ups in parallel, nominal; ``inf`` for none. [Ω]
+    rise_factor : float
+        Rise time in units of Rp·Cb at the rail's minimum. [1]
+    """
+
+    signal: str
+    taps: list[_Tap]
+    cb: float
+    cb_parts: dict
+    leakage: float
+    drivers: list[_Driver]
+    receivers: list[_Receiver]
+    part_pullups: list[dict]
+    r_parts: float
+    rp_min: float
+    rp_min_driver: _Driver | None
+    rp_max: float
+    rise_factor: float
+    rp_min_label: str = ""
+    coupled: bool = False
+
+
+@dataclass
+class SegmentInputs:
+    """One segment after pass 1: its lines, rail corners and pull-up.
+
+    Attributes
+    ----------
+    vdd : numpy.ndarray
+        The pull-up rail at its two corners, ``[min, max]``. [V]
+    pullup : float
+        The design's resistor on each line (chosen when ``auto``). [Ω]
+    """
+
+    segment: Segment
+    index: int
+    vdd: np.ndarray
+    tol: float
+    vtol: float
+    lines: dict[str, LineInputs]
+    pullup: float
+    auto: bool
+    notes: list[str] = field(default_factory=list)
+    defaults: dict = field(default_factory=dict)   # note text -> [where]
+    cb_notes: list[str] = field(default_factory=list)
+
+    def r_eff(self, signal: str) -> float:
+        """Every pull-up on the line in parallel, nominal. [Ω]"""
+        return float(pu.parallel(self.pullup, self.lines[signal].r_parts))
+
+
+def _default(seg_in: SegmentInputs, text: str, where: str) -> None:
+    seg_in.defaults.setdefault(text, [])
+    if where not in seg_in.defaults[text]:
+        seg_in.defaults[text].append(where)
+
+
+def _corner_values(value: Sourced, tap: _Tap, v: np.ndarray, tol: float, worst: str):
+    """A part value at each rail corner: following the pull-up rail, or the worst end of
+    the device's own rail (``worst`` = ``"min"`` or ``"max"``). [unit]"""
+    if not tap.own:
+        return np.broadcast_to(np.asarray(value.at(v), dtype=float), v.shape).astype(float)
+    own = np.array([tap.vdd * (1 - tol), tap.vdd * (1 + tol)])
+    vals = np.asarray(value.at(own), dtype=float)
+    return np.full(v.shape, float(vals.min() if worst == "min" else vals.max()))
+
+
+def _is_mosfet(dev: Device) -> bool:
+    return part_is_mosfet(dev.part)
+
+
+def _offset_side(dev: Device) -> str | None:
+    """The side of a repeater/buffer that drives a static offset low, if any."""
+    part = dev.part
+    if not part.sides or _is_mosfet(dev):
+        return None
+    for name, side in part.sides.items():
+        if side.low_offset is not None:
+            return name
+    return part.bridge.low_offset_side if part.bridge else None
+
+
+def _trace_capacitance(sec: Section, seg_in: SegmentInputs) -> float:
+    """Capacitance of one stretch: geometry through the line models, or per length. [F]"""
+    if sec.geometry is not None:
+        g = sec.geometry
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always", ValidityWarning)
+            if g.kind == "microstrip":
+                kw = {"method": g.method} if g.method else {}
+                model = line_models.microstrip(g.width, g.height, g.er, g.thickness, **kw)
+            else:
+                b = g.spacing if g.spacing is not None else 2.0 * g.height + g.thickness
+                kw = {"method": g.method} if g.method else {}
+                model = line_models.stripline(g.width, b, g.er, g.thickness, **kw)
+        for w in caught:
+            if issubclass(w.category, ValidityWarning):
+                text = f"geometry '{g.name}': {w.message}"
+                if text not in seg_in.notes:
+                    seg_in.notes.append(text)
+        c = float(model.c)
+        seg_in.cb_notes.append(f"{_f(sec.length, 'm')} of '{g.name}' ({g.kind}, "
+                               f"{_f(c, 'F/m')}, Z0 {_f(float(model.z0), 'Ω')})")
+        return c * sec.length
+    label = f"cable '{sec.part_id}'" if sec.part_id else "trace"
+    seg_in.cb_notes.append(f"{_f(sec.length, 'm')} of {label} at {_f(sec.capacitance, 'F/m')}")
+    return float(sec.capacitance) * sec.length
+
+
+def _taps(seg: Segment, function: str) -> list[_Tap]:
+    out = []
+    for d in seg.devices:
+        found = d.part.pin_for(function, d.side)
+        if found is None:  # the design loader refuses such a device; keep the engine safe
+            continue
+        name, pin = found
+        own = d.supply is not None and not math.isclose(d.supply, seg.supply, rel_tol=1e-9)
+        out.append(_Tap(d, name, pin, d.supply if own else seg.supply, own))
+    return out
+
+
+def _capacitance(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits, up: str,
+                 c_traces: float) -> dict:
+    """The contributions to Cb, each at its maximum: pins, traces, cables, extra. [F]"""
+    seg = seg_in.segment
+    c_pins = 0.0
+    for t in taps:
+        if t.pin.c_in is None:
+            c = lim.c_pin
+            _default(seg_in, f"no c_in stated: taken at the specification's "
+                             f"{_f(lim.c_pin, 'F')} maximum ({lim.source_pin})", f"{t.label} {up}")
+        else:
+            c = float(t.pin.c_in.value)
+        c_pins += c * (1.0 + (t.dev.capacitance_tolerance or 0.0))
+    board_tol = 1.0 + seg.capacitance_tolerance
+    c_cables = sum(float(c.part.line.capacitance.value) * c.length for c in seg.cables) * (
+        1.0 + seg.length_tolerance) * board_tol
+    c_extra = seg.extra_capacitance * board_tol
+    return {"pins": c_pins, "traces": c_traces, "cables": c_cables, "extra": c_extra}
+
+
+def _leakage(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits, up: str) -> float:
+    """Sum of the pins' leakage; a receiver that states none at the specification's. [A]"""
+    leak = 0.0
+    for t in taps:
+        value = pin_rules(t.pin, t.dev.part, lim)[2]
+        if value is not None:
+            leak += value
+        if t.pin.leakage is None and value is not None:
+            _default(seg_in, f"no leakage stated: taken at the specification's "
+                             f"{_f(lim.i_leak, 'A')} ({lim.source_pin})", f"{t.label} {up}")
+    return leak
+
+
+def _drivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
+             up: str) -> list[_Driver]:
+    """The open-drain outputs on the line, their sink points at each rail corner."""
+    v, vtol = seg_in.vdd, seg_in.vtol
+    drivers: list[_Driver] = []
+    for t in taps:
+        if not pin_rules(t.pin, t.dev.part, lim)[0]:
+            continue
+        d_vol, d_iol, rule = lim.default_sink(t.vdd)
+        vol_s = t.pin.v_ol if t.pin.v_ol is not None else d_vol
+        iol_s = t.pin.i_ol if t.pin.i_ol is not None else d_iol
+        if t.pin.v_ol is None or t.pin.i_ol is None:
+            _default(seg_in, f"no sink point (v_ol, i_ol) stated: taken at the specification's "
+                             f"{rule} ({lim.source_sink})", f"{t.label} {up}")
+        v_ol = _corner_values(vol_s, t, v, vtol, "max")
+        i_ol = float(iol_s.value)
+        src = t.source("i_ol") if t.pin.i_ol is not None else lim.source_sink
+        offset = None
+        if _offset_side(t.dev) == t.dev.side and t.dev.side is not None:
+            side = t.dev.part.sides[t.dev.side]
+            if side.low_offset is not None:
+                offset = float(np.max(_corner_values(side.low_offset, t, v, vtol, "max")))
+        drivers.append(_Driver(t, v_ol, i_ol, v_ol / i_ol, t.dev.series_resistor or 0.0, src,
+                               offset))
+    return drivers
+
+
+def _receivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
+               up: str) -> list[_Receiver]:
+    """The inputs that read the line, their thresholds at each rail corner."""
+    v, vtol = seg_in.vdd, seg_in.vtol
+    d_il, d_ih = lim.default_levels()
+    receivers: list[_Receiver] = []
+    for t in taps:
+        if not pin_rules(t.pin, t.dev.part, lim)[1]:
+            continue
+        if t.pin.v_il is None or t.pin.v_ih is None:
+            _default(seg_in, f"no input thresholds stated: taken at the specification's "
+                             f"levels ({lim.source_levels})", f"{t.label} {up}")
+        il = t.pin.v_il if t.pin.v_il is not None else d_il
+        ih = t.pin.v_ih if t.pin.v_ih is not None else d_ih
+        src = t.source("v_il") if t.pin.v_il is not None else lim.source_levels
+        receivers.append(_Receiver(t, _corner_values(il, t, v, vtol, "min"),
+                                   _corner_values(ih, t, v, vtol, "max"), src))
+    return receivers
+
+
+def _part_pullups(taps: list[_Tap], seg_in: SegmentInputs, up: str) -> list[dict]:
+    """The pull-ups the parts carry (and the internal ones the design enables)."""
+    out = []
+    for t in taps:
+        if t.pin.pullup is not None:
+            out.append({"ref": t.ref, "pin": t.pin_name, "kind": "on the part",
+                        "value": float(t.pin.pullup.value), "source": t.source("pullup")})
+        if t.dev.internal_pullups:
+            if t.pin.pullup_internal is not None:
+                out.append({"ref": t.ref, "pin": t.pin_name, "kind": "internal, enabled",
+                            "value": float(t.pin.pullup_internal.value),
+                            "source": t.source("pullup_internal")})
+            else:
+                _default(seg_in, "internal pull-ups enabled but the part states none: not counted",
+                         f"{t.label} {up}")
+    return out
+
+
+def _weakest_sink(drivers: list[_Driver], v_max: float) -> tuple[float, _Driver | None]:
+    """Rp(min) of a line: the largest of its drivers' and whose it is (1 mΩ and None when
+    no driver bounds Rp from below); all drivers in one array. [Ω]"""
+    if not drivers:
+        return 1e-3, None
+    r = rp_min_of(v_max, np.array([float(d.v_ol[1]) for d in drivers]),
+                  np.array([d.i_ol for d in drivers]))
+    k = int(np.argmax(r))
+    return (float(r[k]), drivers[k]) if r[k] > 0 else (1e-3, None)
+
+
+def _line_inputs(signal: str, seg_in: SegmentInputs, lim: OpenDrainLimits,
+                 c_traces: float) -> LineInputs:
+    v = seg_in.vdd
+    taps = _taps(seg_in.segment, SIGNALS[signal])
+    up = signal.upper()
+    cb_parts = _capacitance(taps, seg_in, lim, up, c_traces)
+    cb = cb_parts["pins"] + cb_parts["traces"] + cb_parts["cables"] + cb_parts["extra"]
+    leak = _leakage(taps, seg_in, lim, up)
+    drivers = _drivers(taps, seg_in, lim, up)
+    receivers = _receivers(taps, seg_in, lim, up)
+    part_pullups = _part_pullups(taps, seg_in, up)
+    r_parts = float(pu.parallel(*[p["value"] for p in part_pullups])) if part_pullups else math.inf
+    rp_min, weakest = _weakest_sink(drivers, float(v[1]))
+    factor = float(lim.rise_factor(float(v[0])))
+    rp_max = rp_max_of(lim, factor, cb)
+    return LineInputs(signal, taps, cb, cb_parts, leak, drivers, receivers, part_pullups,
+                      r_parts, rp_min, weakest, rp_max, factor,
+                      weakest.tap.label if weakest else "")
+
+
+def _choose(seg_in: SegmentInputs) -> None:
+    """Pick the design's resistor from its series (``auto``): the value that maximises the
+    smaller of the two tolerance-adjusted relative margins over both lines."""
+    seg = seg_in.segment
+    if seg.pullup != "auto":
+        seg_in.pullup, seg_in.auto = float(seg.pullup), False
+        return
+    seg_in.auto = True
+    cand, worst = auto_margins(seg.pullup_series, seg_in.lines.values(), seg_in.tol)
+    cand, worst = cand[0], worst[0]
+    parts_only = math.inf
+    for ln in seg_in.lines.values():
+        if math.isfinite(ln.r_parts):
+            lo0, hi0 = pu.pullup_margins(math.inf, ln.rp_min, ln.rp_max, seg_in.tol, ln.r_parts)
+            parts_only = min(parts_only, float(min(lo0, hi0)))
+        else:
+            parts_only = -math.inf
+    best = int(np.argmax(worst))
+    seg_in.pullup = float(cand[best])
+    if math.isfinite(parts_only) and parts_only >= float(worst[best]) and parts_only > 0:
+        seg_in.notes.append("the parts' own pull-ups alone fit the window at least as well as any "
+                            f"{seg.pullup_series} resistor; the design's resistor may be left off")
+
+
+def collect(bus: Bus, design: Design) -> tuple[OpenDrainLimits, list[SegmentInputs]]:
+    """Pass 1 of the engine: every segment's lines, window and pull-up.
+
+    Parameters
+    ----------
+    bus : Bus
+        An ``i2c`` or ``smbus`` bus of a loaded design.
+    design : Design
+        The design it belongs to.
+
+    Returns
+    -------
+    limits : OpenDrainLimits
+        The mode's or class's published limits.
+    segments : list of SegmentInputs
+        One per segment, in design order.
+    """
+    if bus.protocol not in ("i2c", "smbus"):
+        raise DesignError(M.NOT_OPEN_DRAIN_BUS, field="protocol", value=bus.protocol,
+                          expected="i2c or smbus")
+    lim = limits_for(bus.protocol, bus.mode)
+    out = []
+    for i, seg in enumerate(bus.segments):
+        v = np.array([seg.supply * (1 - seg.supply_tolerance),
+                      seg.supply * (1 + seg.supply_tolerance)])
+        seg_in = SegmentInputs(seg, i, v, seg.pullup_tolerance, seg.supply_tolerance, {},
+                               math.nan, False)
+        if lim.rise_definition == "smbus":
+            lo, hi = lim.measuring_levels(v[0])
+            if v[0] <= float(hi):
+                raise DesignError(M.SUPPLY_BELOW_SMBUS_POINTS,
+                                  field=f"bus.{bus.id}.supply", value=format_si(v[0], "V"),
+                                  expected=f"a rail above {float(hi):.2f} V at its minimum")
+        # SDA and SCL run side by side: one trace model serves both
+        c_traces = sum(_trace_capacitance(sec, seg_in) for sec in seg.sections) * (
+            1.0 + seg.length_tolerance) * (1.0 + seg.capacitance_tolerance)
+        for sig in SIGNALS:
+            seg_in.lines[sig] = _line_inputs(sig, seg_in, lim, c_traces)
+        _choose(seg_in)
+        out.append(seg_in)
+    links_ = links([(s.index, s.segment) for s in out])
+    if any(ln.kind == "mosfet" for lst in links_.values() for ln in lst):
+        _couple(out, links_)
+    return lim, out
+
+
+def _rp_min_coupled(seg_in: SegmentInputs, signal: str, seg_ins: list[SegmentInputs],
+                    links: list[_Link]) -> tuple[float, _Driver | None, str]:
+    """Rp(min) of a segment joined to others through pass transistors (see
+    :func:`coupled_sinks`), the weakest sink and its label."""
+    far = [(link, float(seg_ins[link.other].vdd[1]),
+            seg_ins[link.other].r_eff(signal) * (1 - seg_ins[link.other].tol))
+           for link in links if link.kind == "mosfet"]
+    best, who, label = 1e-3, None, ""
+    for r, d, link in coupled_sinks(float(seg_in.vdd[1]), seg_in.lines[signal].drivers, far,
+                                    seg_ins, signal, lambda x: float(x[1])):
+        r = float(r)
+        if r > best:
+            best, who = r, d
+            label = d.tap.label if link is None else f"{d.tap.label} via {link.dev.ref}"
+    return best, who, label
+
+
+def _couple(seg_ins: list[SegmentInputs], links: dict[int, list[_Link]]) -> None:
+    """Choose the pull-ups of segments joined by pass transistors together.
+
+    Each segment's Rp(min) depends on the pull-ups of the segments it is joined to (see
+    :func:`_rp_min_coupled`); starting from the independent choice, each segment is
+    re-chosen in turn against the others' present values until nothing changes (a few
+    rounds; at most 8).
+    """
+    for _ in range(8):
+        changed = False
+        for s in seg_ins:
+            if not any(ln.kind == "mosfet" for ln in links[s.index]):
+                continue
+            for sig, ln in s.lines.items():
+                ln.rp_min, ln.rp_min_driver, ln.rp_min_label = _rp_min_coupled(
+                    s, sig, seg_ins, links[s.index])
+                ln.coupled = True
+            before = s.pullup
+            _choose(s)
+            changed |= s.pullup != before
+        if not changed:
+            break

@@ -1,0 +1,268 @@
+"""The rules of the open-drain engine that one bus and a batch of variants share.
+
+Every function here takes floats (one bus, its rail corners as arrays of two) or batch
+columns (``(N, corners)``): a pin's roles and leakage, Rp(min) and Rp(max) through
+:mod:`pinlib.physics.rc`, the ``auto`` rule's scores, Rp(min) across pass transistors,
+the joins between segments and their delays, the controller's segment and the SCL times
+it counts, who sets SDA for the setup budget, a rail against a supply range, and the
+worst of an array of margins.
+"""
+
+from __future__ import annotations
+
+import math
+from collections import deque
+from dataclasses import dataclass
+
+import numpy as np
+
+from pinlib.core import eseries
+from pinlib.engines.limits import OpenDrainLimits
+from pinlib.library.schema import Pin
+from pinlib.model.design import Bus, Device, Segment
+from pinlib.model.result import max_margin, min_margin
+from pinlib.physics import pullup as pu
+from pinlib.physics import rc
+
+SIGNALS = {"sda": "i2c-sda", "scl": "i2c-scl"}
+
+#: Forward drop of an input's clamp diode to its own rail, for the power-off check. [V]
+CLAMP_DROP = 0.6  # common practice, no source: a silicon junction at a few mA
+
+#: Gate overdrive (low rail minus the MOSFET's threshold) below which a pass-transistor
+#: translator's on-resistance is not assured. [V]
+GATE_OVERDRIVE = 1.0  # common practice, no source
+
+_CORNERS = ("rail at its minimum", "rail at its maximum")
+_NOT_RECEIVERS = ("connector", "cable")
+_COMMON = "common practice, no source"
+
+
+def part_is_mosfet(part) -> bool:
+    """A pass-transistor translator (it neither drives nor reads the line)."""
+    return part is not None and part.bridge is not None and part.bridge.kind == "mosfet"
+
+
+def pin_rules(pin: Pin, part, lim: OpenDrainLimits) -> tuple[bool, bool, float | None]:
+    """How the engine reads a pin: whether it drives the line low (an open-drain output,
+    not a pass transistor), whether it reads the line (it states a threshold, or its part
+    is not a connector, cable or pass transistor), and its leakage (its part's, else the
+    specification's; None for a connector or cable that states none). [1], [1], [A]"""
+    bridge = part.bridge
+    mosfet = bridge is not None and bridge.kind == "mosfet"
+    quiet = part.category in _NOT_RECEIVERS
+    driver = pin.drive == "open-drain" and not mosfet
+    receiver = pin.v_il is not None or pin.v_ih is not None or not (quiet or mosfet)
+    if pin.leakage is not None:
+        return driver, receiver, float(pin.leakage.value)
+    return driver, receiver, None if quiet else lim.i_leak
+
+
+def abs_max_follows(pin: Pin) -> bool:
+    """An abs_max written as the device's own rail plus a non-negative offset."""
+    th = pin.abs_max.value
+    return getattr(th, "scale", 0.0) == 1.0 and th.offset >= 0.0
+
+
+def rp_min_of(v_max, v_ol, i_ol):
+    """Rp(min) that one driver allows, UM10204 eq. 2 at the rail's maximum; 0 where its
+    sink point is at or above the rail (it bounds nothing); scalars or arrays. [Ω]"""
+    if np.ndim(v_max) == 0 and np.ndim(v_ol) == 0 and np.ndim(i_ol) == 0:
+        return float(rc.rp_min(v_max, v_ol, i_ol)) if v_ol < v_max else 0.0
+    ok = np.asarray(v_ol < v_max)
+    return np.where(ok, rc.rp_min(v_max, np.where(ok, v_ol, 0.0), i_ol), 0.0)
+
+
+def rp_max_of(lim: OpenDrainLimits, factor, cb):
+    """Rp(max) of a line, UM10204 eq. 1 (or the SMBus rise points): ``inf`` where Cb is
+    0 (nothing bounds the pull-up from above); scalars or arrays. [Ω]"""
+    if np.ndim(cb) == 0 and np.ndim(factor) == 0:
+        return float(rc.rp_max(lim.tr_max, cb, factor)) if cb > 0 else math.inf
+    cb_arr = np.asarray(cb, dtype=float)
+    ok = cb_arr > 0
+    return np.where(ok, rc.rp_max(lim.tr_max, np.where(ok, cb_arr, 1.0), factor), math.inf)
+
+
+def auto_margins(series: str, lines, tol: float):
+    """The ``auto`` rule's score of every value of a series (10 Ω to 10 MΩ): the smaller
+    of the two tolerance-adjusted relative margins to Rp(min) and Rp(max), the worst over
+    the lines; the value with the largest score is chosen.  ``lines`` carry ``rp_min``,
+    ``rp_max`` and ``r_parts`` as floats (one bus) or ``(N, 1)`` columns (a batch).
+
+    Returns
+    -------
+    cand : numpy.ndarray
+        The series values, shape ``(1, M)``. [Ω]
+    worst : numpy.ndarray
+        Their scores, shape ``(1 or N, M)``. [1]
+    """
+    cand = eseries.values_in_range(series, 10.0, 10e6)[None, :]
+    worst = np.full(cand.shape, np.inf)
+    for ln in lines:
+        lo, hi = pu.pullup_margins(cand, ln.rp_min, ln.rp_max, tol, ln.r_parts)
+        worst = np.minimum(worst, np.minimum(lo, hi))
+    return cand, worst
+
+
+def _clip0(x):
+    """``max(x, 0)`` for a float or an array."""
+    return np.maximum(x, 0.0) if isinstance(x, np.ndarray) else max(x, 0.0)
+
+
+def _over_budget(dv, budget_i, r_on):
+    """``dv / budget_i − r_on`` where the budget is positive, ``inf`` where it is not
+    (floats or arrays). [Ω]"""
+    if not isinstance(budget_i, np.ndarray) and not isinstance(dv, np.ndarray):
+        return dv / budget_i - r_on if budget_i > 0 else math.inf
+    ok = budget_i > 0
+    return np.where(ok, dv / np.where(ok, budget_i, 1.0) - r_on, math.inf)
+
+
+def coupled_sinks(v_max, drivers, far, segs, signal: str, top):
+    """Rp(min) each driver allows on a segment joined to others through pass transistors,
+    for one bus (floats) or a batch (columns).
+
+    A driver on either side of such a translator sinks both sides' pull-up currents, so
+    its rating is shared: UM10204 eq. 2 with the current the other sides' pull-ups (at
+    their present values, −tolerance, rails at their maximum) already take,
+    ``Rp(min) = (VDD − VOL)/(IOL − I_far) − R_on`` for a driver across the translator
+    (``inf`` where the far pull-ups alone take the whole rating).
+
+    Parameters
+    ----------
+    v_max : float or numpy.ndarray
+        This segment's rail at its maximum. [V]
+    drivers : list
+        This segment's drivers of the line. [1]
+    far : list
+        ``(link, far rail at its maximum, far pull-up at −tolerance)`` per pass
+        transistor. [1], [V], [Ω]
+    segs : list
+        Every segment by index (``lines[signal].drivers``). [1]
+    top : callable
+        A driver's ``v_ol`` at the rail's maximum. [V]
+
+    Yields
+    ------
+    (r, driver, link or None)
+        Rp(min) of one driver, the driver, and the link it acts through. [Ω]
+    """
+    for d in drivers:
+        v_ol = top(d.v_ol)
+        i_far = 0
+        for link, vo, rp in far:
+            i_far = i_far + _clip0(vo - v_ol) / (rp + link.r_on)
+        yield _over_budget(v_max - v_ol, d.i_ol - i_far, 0.0), d, None
+    for link, vo, rp_o in far:
+        for d in segs[link.other].lines[signal].drivers:
+            if d.tap.dev.is_bridge:
+                continue
+            v_ol = top(d.v_ol)
+            yield (_over_budget(v_max - v_ol, d.i_ol - _clip0(vo - v_ol) / rp_o,
+                                link.r_on), d, link)
+
+
+@dataclass
+class _Link:
+    """A bridging part seen from one segment."""
+
+    dev: Device
+    other: int        # the other segment's index
+    kind: str
+    r_on: float
+    t_pd: float
+
+
+def links(segments: list[tuple[int, Segment]]) -> dict[int, list[_Link]]:
+    """The bridging parts joining segments, seen from each: ``segments`` are
+    ``(index, Segment)`` pairs; a part placed on exactly two segments joins them."""
+    where: dict[str, list[tuple[int, Device]]] = {}
+    for index, seg in segments:
+        for d in seg.devices:
+            if d.is_bridge:
+                where.setdefault(d.ref, []).append((index, d))
+    out: dict[int, list[_Link]] = {index: [] for index, _ in segments}
+    for places in where.values():
+        if len(places) != 2:
+            continue
+        (ia, da), (ib, db) = places
+        br = da.part.bridge
+        kind = br.kind if br else "buffer"
+        r_on = float(br.r_on.value) if br and br.r_on is not None else 0.0
+        t_pd = float(da.part.timing.t_pd.value) if da.part.timing.t_pd is not None else 0.0
+        out[ia].append(_Link(da, ib, kind, r_on, t_pd))
+        out[ib].append(_Link(db, ia, kind, r_on, t_pd))
+    return out
+
+
+def delays(start: int, links: dict[int, list[_Link]]) -> dict[int, float]:
+    """One-way bridge delay from the controller's segment to every other."""
+    delay = {start: 0.0}
+    queue = deque([start])
+    while queue:
+        i = queue.popleft()
+        for ln in links.get(i, []):
+            if ln.other not in delay:
+                delay[ln.other] = delay[i] + ln.t_pd
+                queue.append(ln.other)
+    return delay
+
+
+def controller_of(bus: Bus, segments: list[tuple[int, Segment]]) -> tuple[Device | None, int]:
+    """The controller whose timing the checks take (the first listed) and the index of
+    its segment (0 when the bus has none)."""
+    ctrls = bus.controllers
+    ctrl = ctrls[0] if ctrls else None
+    if ctrl is not None:
+        for index, seg in segments:
+            if any(d.ref == ctrl.ref for d in seg.devices):
+                return ctrl, index
+    return ctrl, 0
+
+
+def worst_index(margins: np.ndarray) -> int:
+    """Index of the smallest margin, NaN counted as the worst. [1]"""
+    m = np.where(np.isnan(margins), -np.inf, margins)
+    return int(np.argmin(m))
+
+
+def counted_clock(lim: OpenDrainLimits, clock: float, t_low, t_high):
+    """SCL low and high times as the controller counts them: its own where its part
+    states them, else the specification's tLOW:tHIGH proportion of the clock's period
+    (never below the specification's minima). [s]"""
+    if t_low is None or t_high is None:
+        share = (1.0 / clock) / (lim.t_low + lim.t_high)
+        t_low = t_low if t_low is not None else max(lim.t_low, lim.t_low * share)
+        t_high = t_high if t_high is not None else max(lim.t_high, lim.t_high * share)
+    return t_low, t_high
+
+
+def worst_per_row(margins: np.ndarray) -> tuple[list[float], list[int]]:
+    """Per row of a ``(rows, corners)`` array of margins: the smallest (NaN counted as
+    the worst) and its corner. [1]"""
+    idx = np.argmin(np.where(np.isnan(margins), -np.inf, margins), axis=1)
+    return margins[np.arange(margins.shape[0]), idx].tolist(), idx.tolist()
+
+
+def data_sources(index: int, ctrl_seg: int, segments: list[tuple[int, Segment]],
+                 ctrl: Device | None, delay: dict, drives_sda):
+    """Who sets SDA for the setup budget seen on segment ``index``, and the bridge delay
+    each adds: on the controller's segment every target whose SDA pin drives
+    (``drives_sda(device, segment)``), with its round trip through the bridges; elsewhere
+    the controller. Yields ``(device, delay)``. [s]"""
+    if index == ctrl_seg:
+        for i, seg in segments:
+            for d in seg.devices:
+                if d.is_controller or d.is_bridge or not drives_sda(d, seg):
+                    continue
+                yield d, 2.0 * delay.get(i, 0.0)
+    elif ctrl is not None:
+        yield ctrl, 0.0
+
+
+def supply_margin(lo, hi, s_min, s_max):
+    """A rail's ends against a part's supply range: the margin of the end nearer its
+    limit, and whether that is the low end (floats or arrays). [1]"""
+    m_lo, m_hi = min_margin(lo, s_min), max_margin(hi, s_max)
+    low_side = m_lo < m_hi
+    return np.where(low_side, m_lo, m_hi), low_side
