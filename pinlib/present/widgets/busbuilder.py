@@ -47,6 +47,7 @@ from pinlib.present.widgets.designdoc import (
     _load,
     _team_folders,
     _Trace,
+    _with_bus,
 )
 from pinlib.present.widgets.markup import (
     BLOCK,
@@ -407,18 +408,10 @@ class BusBuilder(_Panel):
             devices.append({"ref": "U1", "part": self.controller.value, "role": "controller"})
         devices += [{"ref": r, "part": p} for r, p in self._peripherals]
         bus.add("devices", _devices_array(devices))
-        aot = tomlkit.aot()
-        aot.append(bus)
-        doc.add(tomlkit.nl())
-        doc.add("bus", aot)
-        return tomlkit.dumps(doc)
+        return _with_bus(doc, bus)
 
-    def update(self) -> None:
+    def _recompute(self) -> None:
         """Rebuild the design from the controls, evaluate it, redraw."""
-        if self._quiet:
-            return
-        self.updates += 1
-        self._show_held()
         try:
             text = self.design_text()
             design = _load(text, self.library)

@@ -503,7 +503,16 @@ class _Panel:
         for c in controls:
             c.observe(self._changed, names="value")
 
-    def update(self) -> None:  # pragma: no cover - every class has its own
+    def update(self) -> None:
+        """Recompute and redraw from the controls (not while changes are batched); the
+        notice of refused fields is refreshed first."""
+        if self._quiet:
+            return
+        self.updates += 1
+        self._show_held()
+        self._recompute()
+
+    def _recompute(self) -> None:  # pragma: no cover - every class has its own
         raise NotImplementedError
 
     def set(self, **values):

@@ -120,6 +120,15 @@ def _design_doc(title: str, comment: str, library: list[str], geometry: dict | N
     return doc
 
 
+def _with_bus(doc, bus) -> str:
+    """The design text of ``doc`` (from :func:`_design_doc`) with ``bus`` as its one bus."""
+    aot = tomlkit.aot()
+    aot.append(bus)
+    doc.add(tomlkit.nl())
+    doc.add("bus", aot)
+    return tomlkit.dumps(doc)
+
+
 def _devices_array(devices: list[dict]):
     arr = tomlkit.array()
     for d in devices:

@@ -41,6 +41,7 @@ from pinlib.present.widgets.designdoc import (
     _inline,
     _load,
     _Trace,
+    _with_bus,
 )
 from pinlib.present.widgets.markup import (
     caution_html,
@@ -261,18 +262,10 @@ class LineExplorer(_Panel):
         lines = tomlkit.table()
         lines.add(self.signal, _inline(entry))
         bus.add("lines", lines)
-        aot = tomlkit.aot()
-        aot.append(bus)
-        doc.add(tomlkit.nl())
-        doc.add("bus", aot)
-        return tomlkit.dumps(doc)
+        return _with_bus(doc, bus)
 
-    def update(self) -> None:
+    def _recompute(self) -> None:
         """Rebuild the line from the controls, evaluate it, redraw both charts."""
-        if self._quiet:
-            return
-        self.updates += 1
-        self._show_held()
         try:
             text = self.design_text()
             design = _load(text, self.library)

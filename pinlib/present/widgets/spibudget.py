@@ -175,14 +175,10 @@ class SpiBudget(_Panel):
         raw["spi_mode"] = int(self.spi_mode.value)
         return data
 
-    def update(self) -> None:
+    def _recompute(self) -> None:
         """Evaluate the bus at the chosen clock and mode; redraw the budget."""
         from pinlib.engines.spi import evaluate_spi, spi_analysis
 
-        if self._quiet:
-            return
-        self.updates += 1
-        self._show_held()
         try:
             design = design_from_text(self.design_data(), self.base.text, self.base.path,
                                       library=self.library)

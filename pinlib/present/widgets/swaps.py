@@ -251,14 +251,11 @@ class SwapExplorer(_Panel):
             self._ref_changed()
         self.update()
 
-    def update(self) -> None:
+    def _recompute(self) -> None:
         """Rerun the design with the substitutions (when they changed) and show the
         position selected: change list, charts, ranking, checks."""
         from pinlib.studies.compare import compare, snapshot
 
-        if self._quiet:
-            return
-        self.updates += 1
         if self._computed != self.swaps:
             try:
                 if self.swaps:
