@@ -33,6 +33,7 @@ import numpy as np
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.progress import progress_bar
+from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS
 from pinlib.core.quantity import format_si
 from pinlib.engines import opendrain as od
 from pinlib.engines.opendrain import batch as ob
@@ -70,7 +71,6 @@ FIGURES = {
 #: candidate.
 FIXED_CHECKS = ("scl-frequency", "bridge-gate-drive", "bridge-offset-facing")
 
-_OPEN_DRAIN = ("i2c", "smbus")
 _RANK = {"pass": 0, "warn": 1, "fail": 2, "error": 3}
 
 
@@ -179,7 +179,7 @@ class Ranking:
         if shown:
             fig_cols = []
             for b in self.buses:
-                for name, unit in FIGURES["open-drain" if b["protocol"] in _OPEN_DRAIN
+                for name, unit in FIGURES["open-drain" if b["protocol"] in OPEN_DRAIN_PROTOCOLS
                                           else "push-pull"]:
                     fig_cols.append((b["bus"], name, unit))
             multi = len(self.buses) > 1
@@ -294,7 +294,7 @@ def _summary_of(results: list[BusResult], places) -> tuple:
                                   "subject": c.subject}
     figures = {}
     for r, (bus, dev) in zip(results, places, strict=True):
-        if bus.protocol in _OPEN_DRAIN:
+        if bus.protocol in OPEN_DRAIN_PROTOCOLS:
             group = r
             if r.segments:
                 seg = next(s.id for s in bus.segments if any(d.ref == dev.ref
@@ -426,7 +426,7 @@ def rank_candidates(design: Design, ref: str, *, categories=None, progress=None)
     current = places[0][1].part_id
     notes = []
     fast_buses = [bus for bus, dev in places
-                  if bus.protocol in _OPEN_DRAIN and not dev.is_bridge]
+                  if bus.protocol in OPEN_DRAIN_PROTOCOLS and not dev.is_bridge]
     slow_buses = [bus.id for bus, _ in places if bus not in fast_buses]
     for bus, dev in places:
         if bus in fast_buses:

@@ -59,6 +59,7 @@ import numpy as np
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.progress import progress_bar
+from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS
 from pinlib.core.quantity import format_si
 from pinlib.engines import opendrain as od
 from pinlib.engines import ppbatch as ppb
@@ -113,7 +114,6 @@ SENSITIVITY_BOARDS = 100_000
 #: Smallest factor a parameter may take (a 100 % tolerance must not give 0 Ω or 0 V).
 _FLOOR = 1e-6
 
-_OPEN_DRAIN = ("i2c", "smbus")
 _PER_DEVICE = ("power-off", "fall-time-min", "bridge-gate-drive", "bridge-offset")
 
 
@@ -222,11 +222,11 @@ def _nominal(design: Design) -> dict:
     from pinlib.engines.dispatch import evaluate_bus
 
     return {b.id: evaluate_bus(b, design) for b in design.buses
-            if b.protocol in _OPEN_DRAIN + ppb.PROTOCOLS}
+            if b.protocol in OPEN_DRAIN_PROTOCOLS + ppb.PROTOCOLS}
 
 
 def _collected(design: Design) -> dict:
-    return {b.id: od.collect(b, design) for b in design.buses if b.protocol in _OPEN_DRAIN}
+    return {b.id: od.collect(b, design) for b in design.buses if b.protocol in OPEN_DRAIN_PROTOCOLS}
 
 
 def _refs(design: Design) -> dict:
@@ -725,7 +725,7 @@ def _fmt_margin(m) -> str:
 
 def _not_sampled(design: Design, what: str = "not sampled") -> list[str]:
     notes = [f"bus {b.id} ({b.protocol}): {what}"
-             for b in design.buses if b.protocol not in _OPEN_DRAIN + ppb.PROTOCOLS]
+             for b in design.buses if b.protocol not in OPEN_DRAIN_PROTOCOLS + ppb.PROTOCOLS]
     return notes
 
 

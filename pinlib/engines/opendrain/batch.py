@@ -316,7 +316,7 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
     # -- SDA data setup
     tr_sda = figs["sda"]["rise_time"]
     def drives_sda(d, seg):
-        pin = ctx.parts.pins(d, "i2c-sda", seg.supply)
+        pin = ctx.parts.pins(d, SIGNALS["sda"], seg.supply)
         return pin is not None and pin.open_drain
 
     rows = [ctx.parts.timing(d).t_vd_dat + extra for d, extra in data_sources(

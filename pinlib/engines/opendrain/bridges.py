@@ -69,7 +69,7 @@ def _offset_check(ctx, seg_in: SegmentInputs, d, grp: Group) -> None:
         grp.notes.append(f"{d.ref}: side {d.side} drives a static offset low but states no "
                          "level (sides.<side>.low_offset); not checked")
         return
-    tap = next(t for t in _taps(seg, "i2c-sda") if t.dev is d)
+    tap = next(t for t in _taps(seg, SIGNALS["sda"]) if t.dev is d)
     off = _corner_values(side.low_offset, tap, v, vtol, "max")
     rows = []
     for sig in SIGNALS:

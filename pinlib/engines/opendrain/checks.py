@@ -354,7 +354,7 @@ def _segment_checks(ctx: Context, seg_in: SegmentInputs, grp: Group, per_line: d
 
 
 def _drives_sda(d, seg) -> bool:
-    pin = d.part.pin_for("i2c-sda", d.side)
+    pin = d.part.pin_for(SIGNALS["sda"], d.side)
     return pin is not None and pin[1].drive == "open-drain"
 
 
@@ -507,7 +507,7 @@ def _power_checks(seg_in: SegmentInputs, grp: Group, taps: list) -> None:
             continue
         currents = []
         for t in loading:
-            sig = "sda" if t.pin.function == "i2c-sda" else "scl"
+            sig = "sda" if t.pin.function == SIGNALS["sda"] else "scl"
             rp = seg_in.r_eff(sig) * (1 - tol)
             currents.append((sig.upper(), (float(v[1]) - CLAMP_DROP) / rp))
         shown = ", ".join(f"{s} {_f(i, 'A')}" for s, i in currents)

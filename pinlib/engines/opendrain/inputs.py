@@ -18,6 +18,7 @@ import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, ValidityWarning
+from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS
 from pinlib.core.quantity import format_si
 from pinlib.engines.limits import OpenDrainLimits, limits_for
 from pinlib.engines.opendrain.rules import (
@@ -401,7 +402,7 @@ def collect(bus: Bus, design: Design) -> tuple[OpenDrainLimits, list[SegmentInpu
     segments : list of SegmentInputs
         One per segment, in design order.
     """
-    if bus.protocol not in ("i2c", "smbus"):
+    if bus.protocol not in OPEN_DRAIN_PROTOCOLS:
         raise DesignError(M.NOT_OPEN_DRAIN_BUS, field="protocol", value=bus.protocol,
                           expected="i2c or smbus")
     lim = limits_for(bus.protocol, bus.mode)

@@ -17,6 +17,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from pinlib.core import eseries
+from pinlib.core.protocols import protocol
 from pinlib.engines.limits import OpenDrainLimits
 from pinlib.library.schema import Pin
 from pinlib.model.design import Bus, Device, Segment
@@ -24,7 +25,8 @@ from pinlib.model.result import max_margin, min_margin
 from pinlib.physics import pullup as pu
 from pinlib.physics import rc
 
-SIGNALS = {"sda": "i2c-sda", "scl": "i2c-scl"}
+#: Signal -> pin function of an open-drain bus (I2C and SMBus name the same two).
+SIGNALS = dict(protocol("i2c").signals)
 
 #: Forward drop of an input's clamp diode to its own rail, for the power-off check. [V]
 CLAMP_DROP = 0.6  # common practice, no source: a silicon junction at a few mA
