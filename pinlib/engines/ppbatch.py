@@ -29,7 +29,6 @@ from typing import Any
 
 import numpy as np
 
-from pinlib.core.protocols import PUSH_PULL_PROTOCOLS
 from pinlib.engines import pushpull as pp
 from pinlib.engines.opendrain.batch import BatchCheck
 from pinlib.engines.ppvariant import (
@@ -44,7 +43,6 @@ from pinlib.model.design import Bus, Design
 from pinlib.model.result import STATUS_CODES
 
 __all__ = [
-    "PROTOCOLS",
     "PpBatch",
     "parameter_specs",
     "vary_bus",
@@ -54,10 +52,6 @@ __all__ = [
     "number_or_nan",
     "build",
 ]
-
-#: The protocols this module evaluates.
-PROTOCOLS = PUSH_PULL_PROTOCOLS
-
 
 
 @dataclass

@@ -59,7 +59,7 @@ import numpy as np
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.progress import progress_bar
-from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS
+from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS, PUSH_PULL_PROTOCOLS
 from pinlib.core.quantity import format_si
 from pinlib.engines import opendrain as od
 from pinlib.engines import ppbatch as ppb
@@ -222,7 +222,7 @@ def _nominal(design: Design) -> dict:
     from pinlib.engines.dispatch import evaluate_bus
 
     return {b.id: evaluate_bus(b, design) for b in design.buses
-            if b.protocol in OPEN_DRAIN_PROTOCOLS + ppb.PROTOCOLS}
+            if b.protocol in OPEN_DRAIN_PROTOCOLS + PUSH_PULL_PROTOCOLS}
 
 
 def _collected(design: Design) -> dict:
@@ -260,7 +260,7 @@ def parameters(design: Design, *, bus: str | None = None, collected=None) -> lis
     for b in design.buses:
         if bus is not None and b.id != bus:
             continue
-        if b.protocol in ppb.PROTOCOLS:
+        if b.protocol in PUSH_PULL_PROTOCOLS:
             for spec in ppb.parameter_specs(b):
                 p = Parameter(*spec)
                 if p.key not in seen:
@@ -725,7 +725,7 @@ def _fmt_margin(m) -> str:
 
 def _not_sampled(design: Design, what: str = "not sampled") -> list[str]:
     notes = [f"bus {b.id} ({b.protocol}): {what}"
-             for b in design.buses if b.protocol not in OPEN_DRAIN_PROTOCOLS + ppb.PROTOCOLS]
+             for b in design.buses if b.protocol not in OPEN_DRAIN_PROTOCOLS + PUSH_PULL_PROTOCOLS]
     return notes
 
 
@@ -866,7 +866,7 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
     table_progress = False if callable(progress) and not isinstance(progress, bool) \
         else progress
     for bus in design.buses:
-        if bus.protocol in ppb.PROTOCOLS:
+        if bus.protocol in PUSH_PULL_PROTOCOLS:
             # whether a table pays is decided once, for all n boards (not per chunk)
             ppb.prepare_table(bus, design, nominal[bus.id], tables, span, _FLOOR, n,
                               progress=table_progress)
@@ -882,7 +882,7 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
             scen = Sampled(u, params)
             chunk_ok = None
             for bus in design.buses:
-                if bus.protocol in ppb.PROTOCOLS:
+                if bus.protocol in PUSH_PULL_PROTOCOLS:
                     bb = ppb.build(bus, design, scen.factors(bus), m, nominal=nominal[bus.id],
                                    tables=tables, span=span, floor=_FLOOR,
                                    progress=table_progress)
@@ -1136,7 +1136,7 @@ def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
     nominal = _nominal(design)
     collected = _collected(design)
     out, methods, per_bus = [], {}, {}
-    sampled = [b for b in design.buses if b.id in collected or b.protocol in ppb.PROTOCOLS]
+    sampled = [b for b in design.buses if b.id in collected or b.protocol in PUSH_PULL_PROTOCOLS]
     bar = progress_bar(len(sampled), desc="corners", unit="bus", enabled=progress)
     with bar:
         for bus in sampled:
@@ -1146,7 +1146,7 @@ def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
 
             def run(u, bus=bus, params=params):
                 scen = Sampled(u, params)
-                if bus.protocol in ppb.PROTOCOLS:
+                if bus.protocol in PUSH_PULL_PROTOCOLS:
                     return ppb.build(bus, design, scen.factors(bus), scen.n,
                                      nominal=nominal[bus.id])
                 return ob.build(bus, design, scen, collected=collected[bus.id])
