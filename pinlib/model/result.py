@@ -14,6 +14,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 __all__ = [
+    "json_number",
     "FORMAT",
     "CAUTION",
     "STATUSES",
@@ -86,10 +87,10 @@ class Check:
         out = {
             "id": self.id,
             "status": self.status,
-            "value": _json_num(self.value),
-            "limit": _json_num(self.limit),
+            "value": json_number(self.value),
+            "limit": json_number(self.limit),
             "unit": self.unit,
-            "margin": _json_num(self.margin),
+            "margin": json_number(self.margin),
             "source": self.source,
             "message": self.message,
         }
@@ -102,7 +103,9 @@ class Check:
         return out
 
 
-def _json_num(v):
+def json_number(v):
+    """A figure for JSON: a finite float, or None where there is no finite number (a
+    yes/no or text value, and None, pass as they are)."""
     if v is None or isinstance(v, (bool, str)):
         return v
     v = float(v)
@@ -117,7 +120,7 @@ def _json_any(v):
     if hasattr(v, "item"):
         v = v.item()
     if isinstance(v, float):
-        return _json_num(v)
+        return json_number(v)
     return v
 
 

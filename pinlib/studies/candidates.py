@@ -39,7 +39,7 @@ from pinlib.engines import opendrain as od
 from pinlib.engines.opendrain import batch as ob
 from pinlib.library.schema import CATEGORIES, Part
 from pinlib.model.design import Bus, Design, Device
-from pinlib.model.result import STATUSES, BusResult, worst
+from pinlib.model.result import STATUSES, BusResult, json_number, worst
 from pinlib.studies.compare import can_serve, positions
 
 __all__ = [
@@ -127,18 +127,13 @@ class Candidate:
 
     def to_json(self) -> dict:
         return {"part": self.part, "title": self.title, "category": self.category,
-                "status": self.status, "worst_margin": _num(self.worst_margin),
+                "status": self.status, "worst_margin": json_number(self.worst_margin),
                 "worst_check": self.worst_check,
-                "figures": {b: {k: {"value": _num(v), "unit": u} for k, (v, u) in f.items()}
+                "figures": {b: {k: {"value": json_number(v), "unit": u} for k, (v, u) in f.items()}
                             for b, f in self.figures.items()},
                 "current": self.current, "method": self.method, "error": self.error}
 
 
-def _num(x):
-    if x is None:
-        return None
-    x = float(x)
-    return x if math.isfinite(x) else None
 
 
 @dataclass

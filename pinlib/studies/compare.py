@@ -41,6 +41,7 @@ from pinlib.library.loader import BUILTIN_DIR
 from pinlib.library.schema import Part
 from pinlib.library.values import Sourced
 from pinlib.model.result import FORMAT as RESULT_FORMAT
+from pinlib.model.result import json_number
 from pinlib.studies.snapshotfile import snapshot_path
 
 __all__ = [
@@ -125,9 +126,9 @@ def _sourced_entry(v: Sourced, vdd: float | None, library) -> dict:
         else:
             out["value"] = float(v.value.offset)
     else:
-        out["value"] = _num(v.value)
+        out["value"] = json_number(v.value)
     if v.typ is not None:
-        out["typ"] = str(v.typ) if isinstance(v.typ, Threshold) else _num(v.typ)
+        out["typ"] = str(v.typ) if isinstance(v.typ, Threshold) else json_number(v.typ)
     basis, source, from_part = v.basis, v.source, False
     if (basis is None or source is None) and v.origin and library is not None \
             and v.origin in library.parts:
@@ -147,11 +148,6 @@ def _sourced_entry(v: Sourced, vdd: float | None, library) -> dict:
     return out
 
 
-def _num(x):
-    if x is None or isinstance(x, (bool, str)):
-        return x
-    x = float(x)
-    return x if math.isfinite(x) else None
 
 
 def part_values(part: Part, rails: dict | None = None, library=None) -> dict[str, dict]:

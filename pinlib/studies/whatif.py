@@ -65,6 +65,7 @@ from pinlib.engines import opendrain as od
 from pinlib.engines import ppbatch as ppb
 from pinlib.engines.opendrain import batch as ob
 from pinlib.model.design import Bus, Design, Segment
+from pinlib.model.result import json_number
 
 __all__ = [
     "CONFIDENCE",
@@ -612,18 +613,14 @@ class McCheck:
         return {"name": self.name, "bus": self.bus, "segment": self.segment,
                 "signal": self.signal, "id": self.id, "unit": self.unit, "source": self.source,
                 "nominal_status": self.nominal_status,
-                "nominal_margin": _num(self.nominal_margin),
+                "nominal_margin": json_number(self.nominal_margin),
                 "pass": self.passes.to_json(), "varies": self.varies,
-                "margin": {"min": _num(q[0]), "p01": _num(q[1]), "median": _num(q[2])},
+                "margin": {"min": json_number(q[0]), "p01": json_number(q[1]),
+                           "median": json_number(q[2])},
                 "sensitivity": [{"parameter": n, "coefficient": c} for n, c in self.sensitivity],
-                "r2": _num(self.r2)}
+                "r2": json_number(self.r2)}
 
 
-def _num(x):
-    if x is None:
-        return None
-    x = float(x)
-    return x if math.isfinite(x) else None
 
 
 @dataclass
@@ -1043,12 +1040,12 @@ class CornerCheck:
     def to_json(self) -> dict:
         return {"name": self.name, "bus": self.bus, "segment": self.segment,
                 "signal": self.signal, "id": self.id, "unit": self.unit, "source": self.source,
-                "status": self.status, "margin": _num(self.margin), "value": _num(self.value),
-                "limit": _num(self.limit),
-                "corner": [{"parameter": n, "end": e, "gain": _num(g)} for n, e, g in
+                "status": self.status, "margin": json_number(self.margin),
+                "value": json_number(self.value), "limit": json_number(self.limit),
+                "corner": [{"parameter": n, "end": e, "gain": json_number(g)} for n, e, g in
                            self.corner],
                 "worst_case_status": self.nominal_status,
-                "worst_case_margin": _num(self.nominal_margin)}
+                "worst_case_margin": json_number(self.nominal_margin)}
 
 
 @dataclass
