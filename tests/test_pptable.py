@@ -99,14 +99,14 @@ def test_a_table_that_disagrees_with_the_engine_is_refused(link, monkeypatch):
     axes = pptable.axes_of(ppb.parameter_specs(bus), 1.0, 1e-6)
     chosen = ppb.chosen_resistors(evaluate_bus(bus, design))
     got = pptable.tabulate(bus, design, axes, chosen)
-    assert isinstance(got, str) and "interpolated margin" in got
+    assert isinstance(got, pptable.Refusal) and "interpolated margin" in got.reason
 
 
 def test_a_refused_table_leaves_every_board_to_the_engine(link):
     design, bus = link
     n = 50
     factors = _factors(bus, n, seed=3)
-    tables = {bus.id: "refused for this test"}
+    tables = {bus.id: pptable.Refusal("refused for this test")}
     got = ppb.build(bus, design, factors, n, tables=tables)
     assert got.engine_boards == n
     assert any("refused for this test" in note for note in got.notes)

@@ -13,7 +13,7 @@ from __future__ import annotations
 import sys
 from collections.abc import Callable
 
-__all__ = ["DELAY", "interactive", "progress_bar"]
+__all__ = ["DELAY", "Progress", "interactive", "progress_bar"]
 
 #: Seconds of work before an automatic bar appears.
 DELAY = 0.5
@@ -37,30 +37,44 @@ def interactive() -> bool:
     return ip is not None and getattr(ip, "kernel", None) is not None
 
 
-class _Silent:
+class Progress:
+    """Progress over ``total`` units of work: the one type :func:`progress_bar` returns.
+
+    It forwards each update to a ``tqdm`` bar, to a callback ``f(done, total)``, to
+    both or to neither, and counts the units done (``done``) in every case.  Use it as a
+    context manager, or call :meth:`close` when the work ends.
+    """
+
+    def __init__(self, total: int, *, bar=None,
+                 callback: Callable[[int, int], object] | None = None):
+        self.total, self.done = int(total), 0
+        self._bar, self._callback = bar, callback
+
+    @property
+    def shown(self) -> bool:
+        """True when a bar is drawn (a terminal or a notebook)."""
+        return self._bar is not None
+
     def update(self, n: int = 1) -> None:
-        pass
+        self.done += n
+        if self._bar is not None:
+            self._bar.update(n)
+        if self._callback is not None:
+            self._callback(self.done, self.total)
 
     def close(self) -> None:
-        pass
+        if self._bar is not None:
+            self._bar.close()
+            self._bar = None
 
-    def __enter__(self):
+    def __enter__(self) -> Progress:
         return self
 
     def __exit__(self, *exc) -> None:
         self.close()
 
 
-class _Callback(_Silent):
-    def __init__(self, fn: Callable[[int, int], object], total: int):
-        self.fn, self.total, self.done = fn, total, 0
-
-    def update(self, n: int = 1) -> None:
-        self.done += n
-        self.fn(self.done, self.total)
-
-
-def progress_bar(total: int, *, desc: str, unit: str = "it", enabled=None):
+def progress_bar(total: int, *, desc: str, unit: str = "it", enabled=None) -> Progress:
     """A progress bar over ``total`` units of work.
 
     Parameters
@@ -77,20 +91,20 @@ def progress_bar(total: int, *, desc: str, unit: str = "it", enabled=None):
 
     Returns
     -------
-    object
+    Progress
         With ``update(n)`` and ``close()``, usable as a context manager.
     """
     if callable(enabled) and not isinstance(enabled, bool):
-        return _Callback(enabled, total)
+        return Progress(total, callback=enabled)
     if enabled is None:
         if not interactive():
-            return _Silent()
+            return Progress(total)
         delay = DELAY
     elif enabled:
         delay = 0.0
     else:
-        return _Silent()
+        return Progress(total)
     from tqdm.auto import tqdm
 
-    return tqdm(total=total, desc=desc, unit=unit, delay=delay, leave=False, file=sys.stderr,
-                dynamic_ncols=True)
+    return Progress(total, bar=tqdm(total=total, desc=desc, unit=unit, delay=delay,
+                                    leave=False, file=sys.stderr, dynamic_ncols=True))

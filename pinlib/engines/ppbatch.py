@@ -29,6 +29,7 @@ from typing import Any
 
 import numpy as np
 
+from pinlib.engines import pptable
 from pinlib.engines import pushpull as pp
 from pinlib.engines.opendrain.batch import BatchCheck
 from pinlib.engines.ppvariant import (
@@ -156,7 +157,7 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
         if moving.any():
             todo |= np.any(np.abs(margin[:, moving]) < band, axis=1)
         notes.append(_table_note(bus, grid))
-    elif tables is not None and isinstance(tables.get(bus.id), str):
+    elif tables is not None and isinstance(tables.get(bus.id), pptable.Refusal):
         notes.append(f"bus {bus.id}: every board evaluated by the engine (no table over its "
                      f"tolerances: {tables[bus.id]})")
     where = np.flatnonzero(todo)
@@ -207,20 +208,16 @@ def _table(bus, design, chosen, tables, span, floor, distinct, progress):
         return None
     if bus.id in tables:
         got = tables[bus.id]
-        return None if isinstance(got, str) else got
-    from pinlib.engines import pptable
-
+        return got if isinstance(got, pptable.LineTable) else None
     axes = pptable.axes_of(parameter_specs(bus), span, floor)
     cost = math.prod(pptable.NODES[ax.kind] for ax in axes) + pptable.VERIFY
     if cost >= distinct:
         return None  # cheaper to run the engine on each variant (and not remembered)
     got = tables[bus.id] = pptable.tabulate(bus, design, axes, chosen, progress=progress)
-    return None if isinstance(got, str) else got
+    return got if isinstance(got, pptable.LineTable) else None
 
 
 def _table_note(bus: Bus, grid) -> str:
-    from pinlib.engines import pptable
-
     axes = ", ".join(f"{ax.kind} factor {ax.lo:.3g}–{ax.hi:.3g}" for ax in grid.axes)
     return (f"bus {bus.id}: line results interpolated from {grid.evaluations} engine "
             f"evaluations over the tolerance box ({axes}); at {pptable.VERIFY} boards "

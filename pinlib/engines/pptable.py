@@ -48,7 +48,7 @@ from pinlib.engines.pushline import Flight
 from pinlib.model.design import Bus, Design
 from pinlib.model.result import STATUS_CODES, min_margin, status_codes
 
-__all__ = ["MARGIN_TOL", "VERIFY", "Axis", "LineTable", "axes_of", "tabulate"]
+__all__ = ["MARGIN_TOL", "VERIFY", "Axis", "LineTable", "Refusal", "axes_of", "tabulate"]
 
 #: Largest difference between an interpolated and an engine margin the table accepts
 #: (margins are fractions of their limit: 0.1 % of the limit).
@@ -57,6 +57,22 @@ MARGIN_TOL = 1e-3
 VERIFY = 20
 #: Nodes per axis, by kind: the length axis moves delays and reflections the most.
 NODES = {"length": 7, "capacitance": 5, "supply": 3}
+
+
+@dataclass(frozen=True)
+class Refusal:
+    """Why no table stands in for the engine on a bus: every board then goes to the
+    engine (correct, only slower), and the run's notes say why."""
+
+    reason: str
+
+    def __str__(self) -> str:
+        return self.reason
+
+
+class _Refused(Exception):
+    """Raised inside the table's construction; :func:`tabulate` returns it as a
+    :class:`Refusal`."""
 #: More engine evaluations than this and the table is not built.
 MAX_NODES = 400
 
@@ -348,7 +364,7 @@ def _record(bus: Bus, res, sa) -> tuple[dict, list]:
 
 
 def tabulate(bus: Bus, design: Design, axes: list[Axis],
-             resistors: dict, *, progress=None) -> LineTable | str:
+             resistors: dict, *, progress=None) -> LineTable | Refusal:
     """Build and verify the table of a push-pull bus, or say why it cannot stand in for
     the engine (see the module notes).
 
@@ -370,14 +386,17 @@ def tabulate(bus: Bus, design: Design, axes: list[Axis],
     grids = [ax.nodes() for ax in axes]
     shape = tuple(g.size for g in grids)
     if int(np.prod(shape, dtype=float)) > MAX_NODES:
-        return f"{int(np.prod(shape, dtype=float))} nodes, more than {MAX_NODES}"
+        return Refusal(f"{int(np.prod(shape, dtype=float))} nodes, more than {MAX_NODES}")
     bar = progress_bar(int(np.prod(shape)) + VERIFY, desc=f"tables for bus {bus.id}",
                        unit="engine run", enabled=progress)
     with bar:
-        return _tabulate(bus, design, axes, resistors, grids, shape, bar)
+        try:
+            return _tabulate(bus, design, axes, resistors, grids, shape, bar)
+        except _Refused as refused:
+            return Refusal(str(refused))
 
 
-def _tabulate(bus, design, axes, resistors, grids, shape, bar) -> LineTable | str:
+def _tabulate(bus, design, axes, resistors, grids, shape, bar) -> LineTable:
     names: list | None = None
     order: list | None = None
     labels: dict[str, list] | None = None
@@ -395,21 +414,19 @@ def _tabulate(bus, design, axes, resistors, grids, shape, bar) -> LineTable | st
             names = ppv.check_names(bus, res)  # "auto" left: no series-termination check)
             order = [nm["name"] for nm in names]
         if [c[0] for c in checks] != order:
-            return "the checks differ across the tolerance box"
+            raise _Refused("the checks differ across the tolerance box")
         here = {sig: [item[:-1] for item in items] for sig, items in per_line.items()}
         if labels is None:
             labels = here
             values = {sig: np.empty(shape + (len(items),)) for sig, items in here.items()}
             first_sa = sa
         elif here != labels:
-            return "the lines' flights differ across the tolerance box"
+            raise _Refused("the lines' flights differ across the tolerance box")
         for sig, items in per_line.items():
             values[sig][index] = [item[-1] for item in items]
         node_checks.append(checks)
         bar.update(1)
     plans = _plan(names, node_checks, labels or {}, values, first_sa, bus, design)
-    if isinstance(plans, str):
-        return plans
     slots = _flight_slots(first_sa, labels or {})
     table = LineTable(axes, names, len(node_checks), 0.0, grids,
                       {sig: (labels[sig], values[sig]) for sig in (labels or {})},
@@ -417,7 +434,7 @@ def _tabulate(bus, design, axes, resistors, grids, shape, bar) -> LineTable | st
     return _verify(table, bus, design, resistors, bar)
 
 
-def _plan(names, node_checks, labels, values, sa, bus, design) -> list | str:
+def _plan(names, node_checks, labels, values, sa, bus, design) -> list:
     """How each check is filled: a constant, a line's interpolated numbers, or a term."""
     warn = design.warn_margin
     plans = []
@@ -436,7 +453,8 @@ def _plan(names, node_checks, labels, values, sa, bus, design) -> list | str:
                 term_k += 1
                 continue
             if len(codes) != 1 or len({_num(c.value) for c in at_nodes}) > 1:
-                return f"{nm['name']}: a bus check that moves and is not a timing term"
+                raise _Refused(f"{nm['name']}: a bus check that moves and is not a "
+                               "timing term")
             plans.append(("const", _num(c0.margin), _num(c0.value), _num(c0.limit),
                           codes.pop()))
             continue
@@ -450,17 +468,17 @@ def _plan(names, node_checks, labels, values, sa, bus, design) -> list | str:
             elif len(np.unique(col)) == 1 or np.isnan(col).all():
                 slots.append(base + off)   # a constant (inf or NaN) interpolates to itself
             else:
-                return f"{nm['name']}: not finite at every node"
+                raise _Refused(f"{nm['name']}: not finite at every node")
         has_margin = c0.margin is not None
         by_margin = has_margin and all(STATUS_CODES[c.status] == int(status_codes(
             np.array([_num(c.margin)]), warn)[0]) for c in at_nodes)
         if not by_margin and len(codes) != 1:
-            return f"{nm['name']}: its status moves, but not with its margin"
+            raise _Refused(f"{nm['name']}: its status moves, but not with its margin")
         if has_margin and not np.isfinite(mgs).all() and len(np.unique(mgs)) != 1:
-            return f"{nm['name']}: a margin not finite at every node"
+            raise _Refused(f"{nm['name']}: a margin not finite at every node")
         plans.append(("line", sig, tuple(slots), by_margin, min(codes)))
     if term_k != n_terms:
-        return "the budget's terms are not all checks"
+        raise _Refused("the budget's terms are not all checks")
     return plans
 
 
@@ -481,7 +499,7 @@ def _flight_slots(sa, labels) -> list:
 
 
 def _verify(table: LineTable, bus: Bus, design: Design, resistors: dict,
-            bar) -> LineTable | str:
+            bar) -> LineTable:
     """Check the table at VERIFY boards drawn in the box (fixed seed) against the engine."""
     rng = np.random.default_rng(20261201)
     keys = [k for ax in table.axes for k in ax.keys]
@@ -495,18 +513,20 @@ def _verify(table: LineTable, bus: Bus, design: Design, resistors: dict,
         bar.update(1)
         engine = [c for _, c in ppv.flat_checks(res)]
         if [nm["name"] for nm in ppv.check_names(bus, res)] != [nm["name"] for nm in table.names]:
-            return "a verification board has other checks"
+            raise _Refused("a verification board has other checks")
         for j, c in enumerate(engine):
             if c.margin is None:
                 if STATUS_CODES[c.status] != got["status"][b, j]:
-                    return f"{table.names[j]['name']}: another status at a verification board"
+                    raise _Refused(f"{table.names[j]['name']}: another status at a "
+                                   "verification board")
                 continue
             mine, theirs = got["margin"][b, j], _num(c.margin)
             if math.isfinite(theirs) or math.isfinite(mine):
                 diff = abs(mine - theirs)
                 if not diff <= MARGIN_TOL:
-                    return (f"{table.names[j]['name']}: interpolated margin {mine:.4g} against "
-                            f"the engine's {theirs:.4g} at a verification board")
+                    raise _Refused(f"{table.names[j]['name']}: interpolated margin "
+                                   f"{mine:.4g} against the engine's {theirs:.4g} at a "
+                                   "verification board")
                 worst = max(worst, diff)
     table.evaluations += VERIFY
     table.max_error = worst

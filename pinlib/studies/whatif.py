@@ -63,6 +63,7 @@ from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS, PUSH_PULL_PROTOCOLS
 from pinlib.core.quantity import format_si
 from pinlib.engines import opendrain as od
 from pinlib.engines import ppbatch as ppb
+from pinlib.engines import pptable
 from pinlib.engines.opendrain import batch as ob
 from pinlib.model.design import Bus, Design, Segment
 from pinlib.model.result import json_number
@@ -923,7 +924,7 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
     board = Yield(board_ok, n, wilson_interval(board_ok, n)) if stores else None
     notes = _not_sampled(design) + pp_notes
     for bus_id, k in engine_boards.items():
-        if k and not isinstance(tables.get(bus_id, ""), str):
+        if k and isinstance(tables.get(bus_id), pptable.LineTable):
             notes.append(f"bus {bus_id}: {k} boards evaluated by the engine (outside the "
                          "tolerance box, or close to failing)")
     if design.distribution == "normal":
