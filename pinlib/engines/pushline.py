@@ -875,6 +875,29 @@ class LineAnalysis:
     def z0(self) -> float:
         return next((s.z0 for s in self.stretches if s.td > 0), math.nan)
 
+    def without_series(self, ref: str) -> DriveCase | None:
+        """The case of driver ``ref`` without the line's series resistor, solved on
+        request (a chart's comparison trace) and kept.
+
+        "auto" kept it when it chose a resistor (``unterminated``); with a fixed
+        resistor it is solved here with the same sections, driver model and loads.  An
+        open-drain driver has no such case (None).  With no resistor on the line it is
+        the final case itself.
+        """
+        if self.rs <= 0:
+            return self.cases[ref]
+        kept = (self.unterminated or {}).get(ref)
+        case = self.cases[ref]
+        if kept is not None or case.driver.pin.drive == "open-drain":
+            return kept
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")  # the engine already noted its warnings
+            kept = drive_case(self.stretches, case.driver, self.models[ref],
+                              _others(self.loads, case.driver), 0.0,
+                              self.line.extra_capacitance, long=self.long)
+        self.unterminated = {**(self.unterminated or {}), ref: kept}
+        return kept
+
 
 def _others(pins: Sequence[Endpoint], driver: Endpoint) -> list[Endpoint]:
     return [p for p in pins if p.device is not driver.device]

@@ -137,7 +137,7 @@ def evaluate_gpio(bus: Bus, design: Design, *, analysis: dict | None = None) -> 
         One line result per routed line (see the module notes).
     """
     solved = gpio_analyses(bus, design) if analysis is None else analysis
-    res = BusResult(id=bus.id, protocol=bus.protocol)
+    res = BusResult(id=bus.id, protocol=bus.protocol, workings=solved)
     if not bus.lines:
         res.notes.append("no routed lines")
     for sig, la in solved.items():

@@ -82,6 +82,7 @@ from pinlib.core.errors import DesignError, InputError
 from pinlib.core.quantity import format_si
 from pinlib.engines.pushline import (
     EDGE_FRACTION,
+    EDGE_RULE,
     SIGNAL_FUNCTION,
     Flight,
     analyse_line,
@@ -640,6 +641,22 @@ class SpiAnalysis:
             return float(f_lim)
         return float(max_clock(np.array(a), np.array(k), f_lim))
 
+    def clock_limits(self) -> list[tuple[str, float, str]]:
+        """The highest clock each requirement allows on its own, lowest first:
+        ``(what, clock, source)`` with ``what`` as ``"copi-setup U7"``, ``"edge-time
+        sclk"`` or ``"f_max U1"``; the first is the one that sets :meth:`max_clock`. [Hz]
+        """
+        out = []
+        for t in self.terms:
+            out.append((f"{t.id} {t.subject}",
+                        float(max_clock([t.a], [_finite_or_inf(t.required - t.b)])),
+                        t.source or "not recorded by the part: taken as 0"))
+        for sig, edge in self.edge_terms:
+            out.append((f"edge-time {sig}",
+                        float(max_clock([EDGE_FRACTION], [_finite_or_inf(edge)])), EDGE_RULE))
+        out.extend((f"f_max {ref}", float(f), source) for ref, f, source in self.f_limits)
+        return sorted(out, key=lambda x: x[1])
+
 
 def _finite_or_inf(x: float) -> float:
     return x if math.isfinite(x) else math.inf
@@ -813,7 +830,7 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
         available minus required time; None when not computed) [s].
     """
     sa = spi_analysis(bus, design) if analysis is None else analysis
-    res = BusResult(id=bus.id, protocol=bus.protocol)
+    res = BusResult(id=bus.id, protocol=bus.protocol, workings=sa)
     res.notes.extend(sa.notes)
     res.notes.append(f"SPI mode {sa.mode.mode} (CPOL {sa.mode.cpol}, CPHA {sa.mode.cpha}): "
                      f"idle {sa.mode.idle}, data launched on the {sa.mode.launch_edge} and "

@@ -255,10 +255,19 @@ class SegmentResult(Group):
 
 @dataclass
 class BusResult(Group):
+    """The result of one bus.
+
+    ``workings`` holds what the engine worked out on the way to the checks — the
+    open-drain engine's inputs (limits and each segment's lines), the SPI analysis, the
+    GPIO lines' analyses — so that charts and reports read it instead of running the
+    engine again.  It is not part of the JSON result and takes no part in comparisons.
+    """
+
     id: str = ""
     protocol: str = ""
     segments: list[SegmentResult] = field(default_factory=list)
     lines: list[LineResult] = field(default_factory=list)
+    workings: Any = field(default=None, repr=False, compare=False)
 
     @property
     def status(self) -> str:

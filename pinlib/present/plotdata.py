@@ -1,14 +1,15 @@
 """The arrays each chart of a design review draws, computed by the engines themselves.
 
-Engine side of the charts: every function here takes a bus of a loaded design, asks
-the bus's engine for what it worked out (:func:`pinlib.engines.opendrain.collect` for an
-open-drain bus, :func:`pinlib.engines.spi.spi_analysis` or
-:func:`pinlib.engines.pushline.analyse_line` for a push-pull bus) and returns plain SI
-arrays.  Curves that the engine does not store (a sweep over Cb or over load) come from
-the same physics functions the engine uses, with the same inputs
-(:func:`pinlib.physics.rc.rp_max`, :func:`pinlib.physics.driver.edge_vs_load`), so the
-chosen or operating point of every chart is the figure the result reports.
-:mod:`pinlib.present.charts` then draws these arrays; it computes nothing.
+Engine side of the charts: every function here takes a bus of a loaded design and reads
+what its engine worked out — the bus result's ``workings`` (:func:`workings`: the open-
+drain engine's inputs, the SPI analysis, the push-pull lines' analyses) — and returns
+plain SI arrays. Given the bus's result (``analysis=``), nothing is evaluated again;
+without it, the bus is evaluated once through the dispatcher. Curves that the engine
+does not store (a sweep over Cb or over load) come from the same physics functions the
+engine uses, with the same inputs (:func:`pinlib.physics.rc.rp_max`,
+:func:`pinlib.physics.driver.edge_vs_load`), so the chosen or operating point of every
+chart is the figure the result reports. :mod:`pinlib.present.charts` then draws these
+arrays; it computes nothing.
 
 Functions
 ---------
@@ -28,17 +29,16 @@ No altair here: this module is importable with the core dependencies.
 from __future__ import annotations
 
 import math
-import warnings
 from dataclasses import dataclass, field
 
 import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
-from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS, PUSH_PULL_PROTOCOLS
+from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS, PUSH_PULL_PROTOCOLS, protocol
 from pinlib.core.quantity import format_si
 from pinlib.model.design import Bus, Design
-from pinlib.model.result import check_min
+from pinlib.model.result import BusResult, check_min
 from pinlib.physics import driver as drv
 from pinlib.physics import rc
 
@@ -262,9 +262,10 @@ def line_analyses(bus: Bus, design: Design, analysis=None) -> dict:
         An ``spi`` or ``gpio`` bus of ``design``. [1]
     design : Design
         The loaded design. [1]
-    analysis : SpiAnalysis or dict, optional
-        What an earlier call returned (or :func:`pinlib.engines.spi.spi_analysis`), to
-        reuse instead of solving the lines again. [1]
+    analysis : BusResult, SpiAnalysis or dict, optional
+        The bus's result, or what an earlier call returned (or
+        :func:`pinlib.engines.spi.spi_analysis`), to reuse instead of solving the lines
+        again (see :func:`workings`). [1]
 
     Returns
     -------
@@ -273,15 +274,25 @@ def line_analyses(bus: Bus, design: Design, analysis=None) -> dict:
         (waveforms) and the models of every driver.
     """
     _require_protocol(bus, PUSH_PULL_PROTOCOLS, "a push-pull line")
-    if analysis is not None:
-        return dict(getattr(analysis, "lines", analysis))
-    if bus.protocol == "spi":
-        from pinlib.engines.spi import spi_analysis
+    got = workings(bus, design, analysis)
+    return dict(getattr(got, "lines", got))
 
-        return dict(spi_analysis(bus, design).lines)
-    from pinlib.engines.pushpull import gpio_analyses
 
-    return gpio_analyses(bus, design)
+def workings(bus: Bus, design: Design, analysis=None):
+    """What the engine worked out for ``bus`` (:attr:`BusResult.workings`): from
+    ``analysis`` — the bus's result, or the engine's own object — or else from one
+    evaluation of the bus (:func:`pinlib.engines.dispatch.evaluate_bus`).
+
+    Every function here reads the engine's workings rather than computing a figure of
+    its own; callers that hold the bus's result (the report, the widgets) pass it, so
+    the bus is evaluated once."""
+    if isinstance(analysis, BusResult):
+        analysis = analysis.workings
+    if analysis is None:
+        from pinlib.engines.dispatch import evaluate_bus
+
+        analysis = evaluate_bus(bus, design).workings
+    return analysis
 
 
 def _line(bus: Bus, design: Design, signal: str, analysis):
@@ -305,7 +316,8 @@ def _case(la, driver: str | None):
 
 
 def pullup_window_data(bus: Bus, design: Design, segment_id: str | None = None,
-                       signal: str = "sda", *, points: int = _CB_POINTS) -> PullupWindowData:
+                       signal: str = "sda", *, points: int = _CB_POINTS,
+                       analysis=None) -> PullupWindowData:
     """Rp(min) and Rp(max) against Cb for one line of an open-drain segment.
 
     Parameters
@@ -321,6 +333,9 @@ def pullup_window_data(bus: Bus, design: Design, segment_id: str | None = None,
         ``"sda"`` (default) or ``"scl"``. [1]
     points : int, optional
         Number of capacitances in the sweep. [1]
+    analysis : BusResult, optional
+        The bus's result, whose workings hold the engine's inputs (see
+        :func:`workings`). [1]
 
     Returns
     -------
@@ -329,7 +344,7 @@ def pullup_window_data(bus: Bus, design: Design, segment_id: str | None = None,
 
     Notes
     -----
-    The engine's pass 1 (:func:`pinlib.engines.opendrain.collect`) gives each line's Cb,
+    The engine's inputs (:func:`pinlib.engines.opendrain.collect`) give each line's Cb,
     Rp(min), rise factor and the chosen pull-up; Rp(max) along the sweep is UM10204
     rev. 6 §7.1 eq. 1, ``Rp(max) = tr / (factor · Cb)``
     (:func:`pinlib.physics.rc.rp_max`), with the same tr(max) and factor the engine
@@ -337,13 +352,12 @@ def pullup_window_data(bus: Bus, design: Design, segment_id: str | None = None,
     larger of Cb and the mode's Cb(max) (400 pF where the document gives none), on a
     log scale; the line's own Cb is one of its points.
     """
-    from pinlib.engines.opendrain import SIGNALS, collect
-
     _require_protocol(bus, OPEN_DRAIN_PROTOCOLS, "a pull-up window")
-    if signal not in SIGNALS:
+    signals = protocol(bus.protocol).signal_names
+    if signal not in signals:
         raise InputError(M.UNKNOWN_OPEN_DRAIN_LINE, field="signal", value=signal,
-                         expected=" or ".join(SIGNALS))
-    lim, seg_ins = collect(bus, design)
+                         expected=" or ".join(signals))
+    lim, seg_ins = workings(bus, design, analysis)
     ids = [s.segment.id for s in seg_ins]
     seg_in = seg_ins[0] if segment_id is None else next(
         (s for s in seg_ins if s.segment.id == segment_id), None)
@@ -388,8 +402,8 @@ def edge_vs_load_data(bus: Bus, design: Design, signal: str, *, driver: str | No
     driver : str, optional
         Reference designator of the driving device; the line's first driver by
         default (a CIPO line has one per peripheral). [1]
-    analysis : SpiAnalysis or dict, optional
-        The lines already solved (:func:`line_analyses`). [1]
+    analysis : BusResult, SpiAnalysis or dict, optional
+        The bus's result, or the lines already solved (:func:`line_analyses`). [1]
     points : int, optional
         Number of loads on each curve. [1]
 
@@ -489,8 +503,8 @@ def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None =
         The routed line. [1]
     driver : str, optional
         The driving device; the line's first driver by default. [1]
-    analysis : SpiAnalysis or dict, optional
-        The lines already solved (:func:`line_analyses`). [1]
+    analysis : BusResult, SpiAnalysis or dict, optional
+        The bus's result, or the lines already solved (:func:`line_analyses`). [1]
     points : int, optional
         About how many samples each trace gets on the chart. [1]
 
@@ -505,17 +519,15 @@ def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None =
     The traces are the line engine's own waveforms (:class:`DriveCase` of
     :func:`pinlib.engines.pushline.analyse_line`): with ``series_resistor = "auto"`` the
     engine keeps the case without the resistor it chose; with a fixed resistor the
-    case without it is solved here by :func:`pinlib.engines.pushline.drive_case` with
-    the same stretches, driver model and loads (push-pull drivers; for an open-drain
-    driver it is left out and a note says so).  Each solver record has its own time
-    grid; the traces are put on one grid (uniform over the window, plus each trace's
-    own peak and dip sample so that the drawn overshoot is the measured one) by linear
-    interpolation, holding a record's last (settled, within 1 %) value past its end.
-    The window ends 30 % past the moment the slowest trace stays within 2 % of its
+    engine solves the case without it on request
+    (:meth:`pinlib.engines.pushline.LineAnalysis.without_series`: push-pull drivers; for
+    an open-drain driver it is left out and a note says so). Each solver record has its
+    own time grid; the traces are put on one grid (uniform over the window, plus each
+    trace's own peak and dip sample so that the drawn overshoot is the measured one) by
+    linear interpolation, holding a record's last (settled, within 1 %) value past its
+    end. The window ends 30 % past the moment the slowest trace stays within 2 % of its
     final level.
     """
-    from pinlib.engines import pushline
-
     la = _line(bus, design, signal, analysis)
     ref, case = _case(la, driver)
     notes: list[str] = []
@@ -523,13 +535,7 @@ def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None =
     if la.rs > 0:
         shown = format_si(la.rs, "Ω")
         cases[f"Rs {shown}"] = case
-        bare = (la.unterminated or {}).get(ref)
-        if bare is None and case.driver.pin.drive != "open-drain":
-            others = [p for p in la.loads if p.device is not case.driver.device]
-            with warnings.catch_warnings():
-                warnings.simplefilter("ignore")  # the engine already noted its warnings
-                bare = pushline.drive_case(la.stretches, case.driver, la.models[ref], others,
-                                           0.0, la.line.extra_capacitance, long=la.long)
+        bare = la.without_series(ref)
         if bare is not None:
             cases["no series R"] = bare
         else:
@@ -594,8 +600,9 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
         An ``spi`` bus of ``design``. [1]
     design : Design
         The loaded design. [1]
-    analysis : SpiAnalysis, optional
-        :func:`pinlib.engines.spi.spi_analysis` of the bus, to reuse. [1]
+    analysis : BusResult or SpiAnalysis, optional
+        The bus's result (or :func:`pinlib.engines.spi.spi_analysis` of the bus), to
+        reuse (see :func:`workings`). [1]
 
     Returns
     -------
@@ -613,10 +620,7 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
     (:func:`pinlib.model.result.check_min` at the design's warning margin).
     """
     _require_protocol(bus, ("spi",), "a timing budget")
-    if analysis is None or not hasattr(analysis, "terms"):
-        from pinlib.engines.spi import spi_analysis
-
-        analysis = spi_analysis(bus, design)
+    analysis = workings(bus, design, analysis)
     clock = float(bus.clock)
     period = 1.0 / clock
     rows, avail, margins, status, sources = [], {}, {}, {}, {}

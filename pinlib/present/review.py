@@ -257,7 +257,7 @@ def _pullup_charts(bus, design, result: BusResult, keys, charts):
             title = f"Pull-up window: {bus.id} {where}"
             key = keys(bus.id, seg.id if result.segments else "", sig, "pullup-window")
             try:
-                d = plotdata.pullup_window_data(bus, design, seg.id, sig)
+                d = plotdata.pullup_window_data(bus, design, seg.id, sig, analysis=result)
             except PinlibError as err:
                 charts.setdefault(place, []).append(
                     ReviewChart(key, "pullup-window", title, "", None, err.message))
@@ -283,14 +283,7 @@ def _push_pull_charts(bus, design, result: BusResult, keys, charts):
     from pinlib.present import charts as ch
     from pinlib.present import plotdata
 
-    sa = None
-    if bus.protocol == "spi":
-        from pinlib.engines.spi import spi_analysis
-
-        sa = spi_analysis(bus, design)
-        lines = dict(sa.lines)
-    else:
-        lines = plotdata.line_analyses(bus, design)
+    lines = plotdata.line_analyses(bus, design, result)
     for sig, la in lines.items():
         place = ("line", bus.id, sig)
         for ref in la.cases:
@@ -333,6 +326,7 @@ def _push_pull_charts(bus, design, result: BusResult, keys, charts):
                 lambda w=w, title=title, rx=rx: ch.waveforms(
                     w.t, w.traces, v_il=w.v_il, v_ih=w.v_ih, vdd=w.vdd, title=title,
                     subtitle=f"at {rx}")))
+    sa = plotdata.workings(bus, design, result) if bus.protocol == "spi" else None
     if sa is not None and sa.terms:
         title = f"SPI timing budget: {bus.id} at {_f(bus.clock, 'Hz')}"
         key = keys(bus.id, "timing-budget")

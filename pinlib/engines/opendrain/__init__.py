@@ -93,7 +93,7 @@ def evaluate_bus(bus: Bus, design: Design) -> BusResult:
     """
     lim, seg_ins = collect(bus, design)
     ctx = Context(bus, design, lim, seg_ins)
-    result = BusResult(id=bus.id, protocol=bus.protocol)
+    result = BusResult(id=bus.id, protocol=bus.protocol, workings=(lim, seg_ins))
     groups = []
     for s in seg_ins:
         try:

@@ -416,7 +416,8 @@ class BusBuilder(_Panel):
             text = self.design_text()
             design = _load(text, self.library)
             result = check_design(design)
-            window = plotdata.pullup_window_data(design.buses[0], design, signal=self.signal)
+            window = plotdata.pullup_window_data(design.buses[0], design, signal=self.signal,
+                                                 analysis=result.buses[0])
         except PinlibError as err:
             self.design = self.result = self.bus_result = None
             self.figures, self.window_data = {}, None

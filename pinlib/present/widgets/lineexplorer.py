@@ -11,8 +11,7 @@ import tomlkit
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
-from pinlib.engines.dispatch import design_result
-from pinlib.engines.pushpull import evaluate_gpio, gpio_analyses
+from pinlib.engines.dispatch import check_design
 from pinlib.library import load_library
 from pinlib.library.loader import Library
 from pinlib.present import charts, plotdata
@@ -270,8 +269,8 @@ class LineExplorer(_Panel):
             text = self.design_text()
             design = _load(text, self.library)
             bus = design.buses[0]
-            solved = gpio_analyses(bus, design)  # the line solved once, for checks and charts
-            result = design_result(design, [evaluate_gpio(bus, design, analysis=solved)])
+            result = check_design(design)  # the line solved once, for checks and charts
+            solved = result.buses[0]
             edge = plotdata.edge_vs_load_data(bus, design, self.signal, analysis=solved)
             wave = plotdata.waveform_data(bus, design, self.signal, analysis=solved,
                                           points=self.wave_points)

@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import copy
-import math
 from dataclasses import dataclass
 
 import ipywidgets as W
@@ -12,6 +11,7 @@ from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import tomllib
+from pinlib.engines.dispatch import evaluate_bus
 from pinlib.model.design import Design, design_from_text, load_design
 from pinlib.model.result import BusResult
 from pinlib.present import charts, plotdata
@@ -177,15 +177,13 @@ class SpiBudget(_Panel):
 
     def _recompute(self) -> None:
         """Evaluate the bus at the chosen clock and mode; redraw the budget."""
-        from pinlib.engines.spi import evaluate_spi, spi_analysis
-
         try:
             design = design_from_text(self.design_data(), self.base.text, self.base.path,
                                       library=self.library)
             bus = design.bus(self.bus.value)
-            sa = spi_analysis(bus, design)
-            br = evaluate_spi(bus, design, analysis=sa)  # the lines solved once, not twice
-            tb = plotdata.timing_budget_data(bus, design, analysis=sa) if sa.terms else None
+            br = evaluate_bus(bus, design)  # once: the chart reads the result's workings
+            sa = br.workings
+            tb = plotdata.timing_budget_data(bus, design, analysis=br) if sa.terms else None
         except PinlibError as err:
             self.design = self.bus_result = self.analysis = self.budget_data = None
             self.figures, self.limits = {}, []
@@ -212,26 +210,8 @@ class SpiBudget(_Panel):
 
     @staticmethod
     def _limits(sa, br: BusResult) -> list[ClockLimit]:
-        """Each requirement's own highest clock, by the engine's own closed form."""
-        from pinlib.engines.pushline import EDGE_FRACTION
-        from pinlib.engines.spi import max_clock
-
-        out = []
-        for t in sa.terms:
-            k = t.required - t.b
-            k = k if math.isfinite(k) else math.inf
-            out.append(ClockLimit(f"{t.id} {t.subject}", float(max_clock([t.a], [k])),
-                                  t.source or "not recorded by the part: taken as 0"))
-        for sig, edge in sa.edge_terms:
-            ln = next((x for x in br.lines if x.signal == sig), None)
-            chk = ln.check("edge-time") if ln is not None else None
-            out.append(ClockLimit(f"edge-time {sig}",
-                                  float(max_clock([EDGE_FRACTION],
-                                                  [edge if math.isfinite(edge) else math.inf])),
-                                  chk.source if chk is not None else ""))
-        for ref, f, source in sa.f_limits:
-            out.append(ClockLimit(f"f_max {ref}", float(f), source))
-        return sorted(out, key=lambda x: x.clock)
+        """Each requirement's own highest clock, as the engine worked it out."""
+        return [ClockLimit(*x) for x in sa.clock_limits()]
 
     def _show_limits(self) -> None:
         f = self.figures.get("max_clock")

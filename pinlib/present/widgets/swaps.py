@@ -381,15 +381,15 @@ class SwapExplorer(_Panel):
             return self.design.bus(self.chart_bus.value)
         return self.design.buses[0] if self.design.buses else None
 
-    def _chart_for(self, bus, design, label: str):
+    def _chart_for(self, bus, design, bus_result, label: str):
         """The specification of the chart that says most about a bus: the pull-up window of
         an open-drain bus (the segment of the position), the timing budget of an SPI bus,
-        the edge chart of a GPIO line."""
+        the edge chart of a GPIO line; read from the bus's result (no second evaluation)."""
         if is_open_drain(bus.protocol):
             ref = self.ref.value
             seg = next((s.id for s in bus.segments if any(d.ref == ref for d in s.devices)),
                        None)
-            w = plotdata.pullup_window_data(bus, design, seg, "sda")
+            w = plotdata.pullup_window_data(bus, design, seg, "sda", analysis=bus_result)
             return charts.spec(
                 charts.pullup_window, w.cb, w.rp_min, w.rp_max, chosen_cb=w.chosen_cb,
                 chosen_rp=w.chosen_rp,
@@ -397,12 +397,12 @@ class SwapExplorer(_Panel):
                 chosen_label=f"design: {format_si(w.chosen_rp, 'Ω')} at "
                              f"{format_si(w.chosen_cb, 'F')}")
         if bus.protocol == "spi":
-            tb = plotdata.timing_budget_data(bus, design)
+            tb = plotdata.timing_budget_data(bus, design, analysis=bus_result)
             return charts.spec(charts.timing_budget, tb.rows, available=tb.available,
                                margins=tb.margins, status=tb.status,
                                title=f"{label}: timing budget, {bus.id}")
         sig = next(iter(bus.lines))
-        ed = plotdata.edge_vs_load_data(bus, design, sig)
+        ed = plotdata.edge_vs_load_data(bus, design, sig, analysis=bus_result)
         return charts.spec(charts.edge_vs_load, ed.loads, np.vstack(list(ed.curves.values())),
                            series=list(ed.curves),
                            points=ed.points if len(ed.points[0]) else None,
@@ -415,13 +415,14 @@ class SwapExplorer(_Panel):
             self.before.clear("the design has no bus")
             self.after.clear("the design has no bus")
             return
-        for view, design, label in ((self.before, self.design, "Before"),
-                                    (self.after, self.swapped, "After")):
+        for view, design, result, label in (
+                (self.before, self.design, self.result, "Before"),
+                (self.after, self.swapped, self.swapped_result, "After")):
             if view is self.after and not self.swaps:
                 view.clear("apply a substitution")
                 continue
-            view.draw(lambda design=design, label=label:
-                      self._chart_for(design.bus(bus.id), design, label))
+            view.draw(lambda design=design, result=result, label=label:
+                      self._chart_for(design.bus(bus.id), design, result.bus(bus.id), label))
 
     # ---------------------------------------------------------------- ranking
     def _rank(self) -> None:
