@@ -1,0 +1,173 @@
+"""The edge-versus-load chart of a push-pull driver."""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+import numpy as np
+
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
+from pinlib.core.quantity import format_si
+from pinlib.present.charts.frame import (
+    _array,
+    _keep,
+    _legend,
+    _num,
+    _plot_room,
+    _q,
+    _scalar,
+    _scale_pair,
+    _short,
+    _title,
+    _titled,
+    _unique,
+    display_scale,
+)
+from pinlib.present.charts.render import _alt, _data, _reuse
+from pinlib.present.charts.style import _HEIGHT, _WIDTH, OPERATING, series_colours
+
+if TYPE_CHECKING:  # pragma: no cover - typing only
+    import altair as alt
+
+
+def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
+                 log_x: bool = False, log_y: bool = False, edge_label: str = "Edge time",
+                 curves_title: str | None = "Curve",
+                 title: str | None = "Edge time against load", subtitle: str | None = None,
+                 width: int = _WIDTH, height: int = _HEIGHT) -> alt.LayerChart:
+    """Edge time against load capacitance, one curve per driver or edge.
+
+    Parameters
+    ----------
+    loads : array_like
+        Load capacitances of the curves (1-D, shared by every curve). [F]
+    edge_times : array_like
+        Edge times, 1-D (one curve) or 2-D of shape ``(curves, len(loads))``. [s]
+    points : tuple, optional
+        Datasheet points ``(loads, times, labels)``: arrays of loads [F] and times [s]
+        and a label per point (or one label for all). A label equal to a curve's name
+        takes that curve's colour. [F, s, 1]
+    operating : tuple, optional
+        The operating point ``(load, time)`` or ``(load, time, label)``. [F, s, 1]
+    series : str or sequence of str, optional
+        The name of each curve (legend); default ``"model"`` for one curve, else
+        ``"curve 1"``, ``"curve 2"``... [1]
+    log_x, log_y : bool, optional
+        Logarithmic load / time axis. [1]
+    edge_label : str, optional
+        What the time axis shows, e.g. ``"Rise time 10-90 %"``. [1]
+    curves_title : str, optional
+        Title of the curves' legend, e.g. what the curves model. [1]
+    title, subtitle : str, optional
+        Chart title and lines below it (wrapped to the width). [1]
+    width : int, optional
+        Width of the whole chart, axes and legends included. [px]
+    height : int, optional
+        Height of the plot. [px]
+
+    Returns
+    -------
+    altair.LayerChart
+        Curves (lines), then datasheet points and the operating point (point marks
+        with a shape legend) with its time and load written beside it.
+    """
+    alt = _alt()
+    x = _array(loads, "loads")
+    y = _array(edge_times, "edge_times", ndim=(1, 2))
+    y2 = y[np.newaxis, :] if y.ndim == 1 else y
+    if y2.shape[1] != x.size:
+        raise InputError(M.EDGE_TIMES_NOT_LOADS, field="edge_times",
+                         value=f"shape {y.shape}", expected=f"{x.size} values per curve")
+    if series is None:
+        names = ["model"] if y2.shape[0] == 1 else [f"curve {i + 1}" for i in
+                                                     range(y2.shape[0])]
+    else:
+        names = [series] if isinstance(series, str) else [str(s) for s in series]
+    if len(names) != y2.shape[0] or len(set(names)) != len(names):
+        raise InputError(M.SERIES_NAMES, field="series",
+                         value=names, expected=f"{y2.shape[0]} distinct names")
+
+    px = py = np.zeros(0)
+    plabels: list[str] = []
+    if points is not None:
+        if len(points) != 3:
+            raise InputError(M.POINTS_FORM, field="points",
+                             value=_short(points), expected="a 3-tuple")
+        px = _array(points[0], "points.loads", ndim=(0, 1)).ravel()
+        py = _array(points[1], "points.times", ndim=(0, 1)).ravel()
+        lab = points[2]
+        plabels = [lab] * px.size if isinstance(lab, str) else [str(s) for s in lab]
+        if not (px.size == py.size == len(plabels)):
+            raise InputError(M.POINTS_LENGTHS,
+                             field="points",
+                             value=f"{px.size}, {py.size}, {len(plabels)}",
+                             expected="equal lengths")
+    op = None
+    if operating is not None:
+        if len(operating) not in (2, 3):
+            raise InputError(M.OPERATING_FORM,
+                             field="operating", value=_short(operating),
+                             expected="a 2- or 3-tuple")
+        op = (_scalar(operating[0], "operating.load", positive=log_x),
+              _scalar(operating[1], "operating.time", positive=log_y),
+              str(operating[2]) if len(operating) == 3 else "operating point")
+
+    xs, ys = np.broadcast_to(x, y2.shape), y2
+    ok = _keep(xs, ys, positive=(log_x, log_y))
+    okp = _keep(px, py, positive=(log_x, log_y))
+    if not ok.any():
+        raise InputError(M.CURVES_NOT_DRAWABLE, field="edge_times",
+                         expected="finite values (positive on a log axis)")
+    all_x = np.concatenate([xs[ok], px[okp], [op[0]] if op else []])
+    all_y = np.concatenate([ys[ok], py[okp], [op[1]] if op else []])
+    fx, ux = display_scale(all_x, "F", log=log_x)
+    fy, uy = display_scale(all_y, "s", log=log_y)
+    x_title = _title("Load capacitance", ux)
+    y_title = _title(edge_label, uy)
+
+    domain = _unique([*names, *(plabels[i] for i in np.flatnonzero(okp))])
+    kinds = (["datasheet"] if okp.any() else []) + ([op[2]] if op else [])
+    shapes = (["diamond"] if okp.any() else []) + (["cross"] if op else [])
+    rows = [{"load": _num(a * fx), "t": _num(b * fy), "series": names[k]}
+            for k in range(y2.shape[0]) for a, b in zip(xs[k][ok[k]], ys[k][ok[k]], strict=True)]
+    pts = ([{"load": _num(a * fx), "t": _num(b * fy), "series": s, "kind": "datasheet"}
+            for a, b, s, keep in zip(px, py, plabels, okp, strict=True) if keep]
+           if okp.any() else None)
+    op_rows = ([{"load": _num(op[0] * fx), "t": _num(op[1] * fy), "kind": op[2],
+                 "note": f"{format_si(op[1], 's')} at {format_si(op[0], 'F')}"}]
+               if op else None)
+    known = _reuse(("edge_vs_load", x_title, y_title, bool(log_x), bool(log_y),
+                    tuple(domain), tuple(kinds), tuple(shapes), curves_title, title,
+                    subtitle, width, height),
+                   [rows] + ([pts] if pts is not None else [])
+                   + ([op_rows] if op_rows is not None else []))
+    if known is not None:
+        return known
+
+    colour = alt.Color("series:N", scale=_scale_pair(domain, series_colours(domain,
+                                                                             (OPERATING,))),
+                       legend=_legend(curves_title, domain, _plot_room(width)))
+    shape = alt.Shape("kind:N", scale=alt.Scale(domain=kinds, range=shapes),
+                      legend=_legend("Points", kinds, _plot_room(width)))
+    layers = [alt.Chart(_data(rows)).mark_line(strokeWidth=2).encode(
+        x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
+        color=colour, detail=alt.Detail("series:N"))]
+    tips = [alt.Tooltip("load:Q", title=x_title), alt.Tooltip("t:Q", title=y_title)]
+    if pts is not None:
+        layers.append(alt.Chart(_data(pts)).mark_point(
+            filled=True, size=90, opacity=1).encode(
+            x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
+            color=colour, shape=shape, tooltip=[*tips, alt.Tooltip("series:N", title="part")]))
+    if op_rows is not None:
+        layers.append(alt.Chart(_data(op_rows)).mark_point(
+            filled=True, size=160, opacity=1, color=OPERATING).encode(
+            x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
+            shape=shape, tooltip=tips))
+        # its values written beside it: the cross is read on its own, not off a curve
+        layers.append(alt.Chart(_data(op_rows)).mark_text(
+            align="left", baseline="middle", dx=9, fontSize=11, fontWeight="bold",
+            color=OPERATING).encode(
+            x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
+            text=alt.Text("note:N")))
+    return _titled(alt.layer(*layers), title, subtitle, width, height)

@@ -1,0 +1,213 @@
+"""What every chart is built of: checked inputs, display scales, axes, legends, titles."""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+
+import numpy as np
+
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
+from pinlib.present.charts.render import _alt
+from pinlib.present.charts.style import (
+    _AXIS_ROOM,
+    _FLUSH_PX,
+    _LEGEND_GAP,
+    _LEGEND_OFFSET,
+    _LEGEND_SIZE,
+    _LEGEND_SYMBOL,
+    _PAD_PX,
+    _PREFIXES,
+    _WIDTH,
+    FONT,
+    _wrap,
+    text_width,
+)
+
+
+def _array(x, field: str, *, ndim: int | tuple[int, ...] = 1) -> np.ndarray:
+    """``x`` as a float array of the allowed dimension(s), or an InputError naming it."""
+    try:
+        a = np.asarray(x, dtype=float)
+    except (TypeError, ValueError):
+        raise InputError(M.NOT_NUMBERS, field=field,
+                         value=_short(x), expected="floats in SI units") from None
+    dims = (ndim,) if isinstance(ndim, int) else ndim
+    if a.ndim not in dims:
+        raise InputError(M.ARRAY_DIMENSIONS.format(ndim=a.ndim), field=field,
+                         value=_short(x),
+                         expected=" or ".join(f"{d}-D" for d in dims) + " array")
+    return a
+
+
+def _scalar(x, field: str, *, positive: bool = False) -> float:
+    try:
+        v = float(x)
+    except (TypeError, ValueError):
+        raise InputError(M.NOT_A_NUMBER, field=field, value=_short(x),
+                         expected="a float in SI units") from None
+    if not math.isfinite(v) or (positive and v <= 0.0):
+        raise InputError(M.CANNOT_BE_DRAWN, field=field, value=v,
+                         expected="a finite positive value" if positive else "a finite value")
+    return v
+
+
+def _short(x) -> str:
+    text = repr(x)
+    return text if len(text) <= 60 else text[:57] + "..."
+
+
+def _num(x: float) -> float:
+    """A display value for the JSON spec: 12 significant digits (stable, compact)."""
+    return float(f"{float(x):.12g}")
+
+
+def display_scale(values, unit: str, *, log: bool = False) -> tuple[float, str]:
+    """Display factor and prefixed unit for an axis showing ``values``.
+
+    Parameters
+    ----------
+    values : array_like
+        The values the axis shows. [unit]
+    unit : str
+        Their SI unit (``"F"``, ``"Ω"``, ``"s"``, ``"V"``); ``""`` for a pure number,
+        ``"%"`` for a fraction shown in percent. [1]
+    log : bool, optional
+        The axis is logarithmic: the prefix is chosen for the geometric middle of the
+        range rather than its largest magnitude. [1]
+
+    Returns
+    -------
+    factor : float
+        Multiply an SI value by this to get the displayed number. [1]
+    shown_unit : str
+        The unit with its prefix, e.g. ``"pF"``. [1]
+
+    Examples
+    --------
+    >>> display_scale([10e-12, 400e-12], "F")
+    (1000000000000.0, 'pF')
+    >>> display_scale([0.0, 3.3], "V")
+    (1.0, 'V')
+    """
+    if unit == "%":
+        return 100.0, "%"
+    v = np.abs(np.asarray(values, dtype=float).ravel())
+    v = v[np.isfinite(v) & (v > 0.0)]
+    if not unit or v.size == 0:
+        return 1.0, unit
+    ref = math.sqrt(float(v.min()) * float(v.max())) if log else float(v.max())
+    exp = int(np.clip(math.floor(math.log10(ref) / 3.0) * 3, -15, 12))
+    return 10.0 ** (-exp), _PREFIXES[exp] + unit
+
+
+def _title(label: str, shown_unit: str) -> str:
+    return f"{label} ({shown_unit})" if shown_unit else label
+
+
+def _scale_pair(domain: list[str], colours: list[str]):
+    alt = _alt()
+    return alt.Scale(domain=list(domain), range=list(colours))
+
+
+def _columns(labels: Sequence[str], room: float) -> int:
+    """How many legend columns fit ``labels`` into ``room`` px, entries in rows."""
+    widths = [_LEGEND_SYMBOL + text_width(s, _LEGEND_SIZE) for s in labels]
+    for k in range(max(len(widths), 1), 1, -1):
+        cols = [max(widths[j::k]) for j in range(k)]
+        if sum(cols) + _LEGEND_GAP * (k - 1) <= room:
+            return k
+    return 1
+
+
+def _plot_room(width: int, left: float = _AXIS_ROOM, right: float = 12.0) -> float:
+    """The plot's width in a chart ``width`` px wide with ``left`` px of axis before it and
+    ``right`` px after it (estimates that err large, so the plot errs small). [px]"""
+    return max(float(width) - left - right, 60.0)
+
+
+def _legend(title: str | None, labels: Sequence[str] = (), room: float = _WIDTH, **extra):
+    """A legend below the plot, starting at its left edge, its entries in as many
+    columns as fit ``room`` px (the plot's width, :func:`_plot_room`); no label is cut."""
+    alt = _alt()
+    head = _wrap(title, _LEGEND_SIZE, room - 4, bold=True) if title else None
+    props = dict(title=head[0] if head and len(head) == 1 else head, orient="bottom",
+                 direction="horizontal", titleLimit=int(room), titleOrient="top",
+                 columns=_columns(list(labels), room), labelLimit=int(room),
+                 labelFontSize=_LEGEND_SIZE, titleFontSize=_LEGEND_SIZE,
+                 columnPadding=_LEGEND_GAP, rowPadding=4, symbolOpacity=0.9,
+                 offset=_LEGEND_OFFSET)
+    props.update(extra)
+    return alt.Legend(**props)
+
+
+def _axis(title: str, *, flush: bool = True):
+    """A quantitative axis; ``flush`` for a horizontal one."""
+    alt = _alt()
+    # "~r": decimal notation, trailing zeros off (no "1.4e+2", no thousands commas);
+    # Vega sets the precision from the tick step.  On a horizontal axis, labels near an
+    # end sit flush inside it and any still past it are hidden (a label centred on a
+    # tick near the end could reach past the chart).  Labels that would overlap are
+    # left out.
+    props = dict(title=title, format="~r", labelOverlap=True)
+    if flush:
+        props.update(labelFlush=_FLUSH_PX, labelBound=True)
+    return alt.Axis(**props)
+
+
+def _q(field: str, title: str, *, log: bool = False, channel: str = "x", pad: bool = False):
+    """A quantitative position channel; ``pad`` keeps the outermost values ``_PAD_PX``
+    inside the frame (a limit line is never drawn on the frame itself)."""
+    alt = _alt()
+    props = {}
+    if log:
+        props["type"] = "log"
+    if pad:
+        props.update(padding=_PAD_PX, nice=False)
+        if not log:
+            props["zero"] = False
+    scale = alt.Scale(**props) if props else alt.Undefined
+    cls = alt.X if channel == "x" else alt.Y
+    return cls(f"{field}:Q", scale=scale, axis=_axis(title, flush=channel == "x"))
+
+
+def _titled(chart, title: str | None, subtitle: str | None, width: int, height: int):
+    """Size, title and font of a chart: ``width`` is the whole chart's (axes and legend
+    included), ``height`` the plot's; a title or subtitle wider than the chart wraps."""
+    alt = _alt()
+    props = {"width": int(width), "height": int(height),
+             "autosize": alt.AutoSizeParams(type="fit-x", contains="padding")}
+    if title:
+        room = float(width) - 10.0
+        params = {"text": _wrap(title, 13, room, bold=True), "anchor": "start"}
+        if subtitle:
+            params["subtitle"] = _wrap(subtitle, 11, room)
+            params["subtitleFontSize"] = 11
+        props["title"] = alt.TitleParams(fontSize=13, **params)
+    # Legends below the plot stack one under the other (Vega's default puts them side by
+    # side, past the chart's width); the layout object goes to Vega as an expression.
+    stack = alt.ExprRef(expr="{bottom: {direction: 'vertical', anchor: 'start'}}")
+    # as .configure(font=FONT).configure_legend(layout=stack), set on the one copy
+    # properties() made: each altair call copies every layer of the chart once more
+    out = chart.properties(**props)
+    out.config = alt.Config(font=FONT)
+    out.config["legend"] = alt.LegendConfig(layout=stack)
+    return out
+
+
+def _unique(labels) -> list[str]:
+    seen: dict[str, None] = {}
+    for s in labels:
+        seen.setdefault(str(s), None)
+    return list(seen)
+
+
+def _keep(*arrays: np.ndarray, positive: Sequence[bool]) -> np.ndarray:
+    """Mask of the points that can be drawn: finite, and positive on log axes."""
+    ok = np.ones(arrays[0].shape, dtype=bool)
+    for a, pos in zip(arrays, positive, strict=True):
+        ok &= np.isfinite(a)
+        if pos:
+            ok &= a > 0.0
+    return ok
