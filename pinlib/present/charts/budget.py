@@ -73,38 +73,8 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
         Stacked bars (x: time, y: path), the available-time ticks, each path's name
         above its bar at the left and its margin at the right.
     """
-    alt = _alt()
-    items = []
-    for i, row in enumerate(rows):
-        try:
-            path, comp, dur = row
-        except (TypeError, ValueError):
-            raise InputError(M.BUDGET_ROW_FORM,
-                             field=f"rows[{i}]", value=_short(row),
-                             expected="a 3-tuple") from None
-        items.append((str(path), str(comp), _scalar(dur, f"rows[{i}].duration")))
-    if not items:
-        raise InputError(M.NO_BUDGET_ROWS, field="rows", expected="at least one row")
-    paths = _unique(p for p, _, _ in items)
-    comps = _unique(c for _, c, _ in items)
-
-    if available is None:
-        avail: dict[str, float] = {}
-    elif isinstance(available, Mapping):
-        avail = {str(k): _scalar(v, f"available[{k!r}]") for k, v in available.items()}
-    else:
-        value = _scalar(available, "available")
-        avail = dict.fromkeys(paths, value)
-    marg = {str(k): _scalar(v, f"margins[{k!r}]") for k, v in (margins or {}).items()}
-    unknown = sorted((set(avail) | set(marg) | set(status or {})) - set(paths))
-    if unknown:
-        raise InputError(M.UNKNOWN_PATH, field="available/margins/status", value=unknown,
-                         expected=f"one of {paths}")
-    stat = {p: (status or {}).get(p, "pass" if m >= 0.0 else "fail") for p, m in marg.items()}
-    bad = sorted(s for s in stat.values() if s not in STATUS_COLOURS)
-    if bad:
-        raise InputError(M.UNKNOWN_STATUS, field="status", value=bad,
-                         expected="'pass', 'warn' or 'fail'")
+    items, paths, comps = _rows(rows)
+    avail, marg, stat = _per_path(paths, available, margins, status)
 
     # Display prefix from the longest stack or available time (display only).
     ends = [sum(d for p, _, d in items if p == q and d > 0) for q in paths]
@@ -134,7 +104,54 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
     if known is not None:
         return known
 
-    band = plot_h / n_rows
+    layers = _layers(bars, ticks, names, notes, x_title, paths, comps, fixed,
+                     fixed_colours, plot_h / n_rows, width)
+    return _titled(_alt().layer(*layers), title, subtitle, width, plot_h)
+
+
+def _rows(rows) -> tuple[list, list[str], list[str]]:
+    """The rows as ``(path, component, duration)``, the paths and the components."""
+    items = []
+    for i, row in enumerate(rows):
+        try:
+            path, comp, dur = row
+        except (TypeError, ValueError):
+            raise InputError(M.BUDGET_ROW_FORM,
+                             field=f"rows[{i}]", value=_short(row),
+                             expected="a 3-tuple") from None
+        items.append((str(path), str(comp), _scalar(dur, f"rows[{i}].duration")))
+    if not items:
+        raise InputError(M.NO_BUDGET_ROWS, field="rows", expected="at least one row")
+    return items, _unique(p for p, _, _ in items), _unique(c for _, c, _ in items)
+
+
+def _per_path(paths, available, margins, status) -> tuple[dict, dict, dict]:
+    """The available time, the margin and the status of each path, checked."""
+    if available is None:
+        avail: dict[str, float] = {}
+    elif isinstance(available, Mapping):
+        avail = {str(k): _scalar(v, f"available[{k!r}]") for k, v in available.items()}
+    else:
+        value = _scalar(available, "available")
+        avail = dict.fromkeys(paths, value)
+    marg = {str(k): _scalar(v, f"margins[{k!r}]") for k, v in (margins or {}).items()}
+    unknown = sorted((set(avail) | set(marg) | set(status or {})) - set(paths))
+    if unknown:
+        raise InputError(M.UNKNOWN_PATH, field="available/margins/status", value=unknown,
+                         expected=f"one of {paths}")
+    stat = {p: (status or {}).get(p, "pass" if m >= 0.0 else "fail") for p, m in marg.items()}
+    bad = sorted(s for s in stat.values() if s not in STATUS_COLOURS)
+    if bad:
+        raise InputError(M.UNKNOWN_STATUS, field="status", value=bad,
+                         expected="'pass', 'warn' or 'fail'")
+    return avail, marg, stat
+
+
+def _layers(bars, ticks, names, notes, x_title, paths, comps, fixed, fixed_colours,
+            band, width) -> list:
+    """The stacked bars, the available ticks, each path's name above its bar and its
+    margin at the right, as altair layers."""
+    alt = _alt()
     colour = alt.Color("series:N",
                        scale=_scale_pair(comps + fixed, series_colours(comps, fixed_colours)
                                          + fixed_colours),
@@ -164,4 +181,4 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
             align="right", baseline="bottom", dx=-2, dy=above, fontSize=11,
             fontWeight="bold").encode(
             x=alt.value("width"), y=y, text=alt.Text("text:N"), color=colour))
-    return _titled(alt.layer(*layers), title, subtitle, width, plot_h)
+    return layers

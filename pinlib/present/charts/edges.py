@@ -72,46 +72,10 @@ def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
         Curves (lines), then datasheet points and the operating point (point marks
         with a shape legend) with its time and load written beside it.
     """
-    alt = _alt()
     x = _array(loads, "loads")
-    y = _array(edge_times, "edge_times", ndim=(1, 2))
-    y2 = y[np.newaxis, :] if y.ndim == 1 else y
-    if y2.shape[1] != x.size:
-        raise InputError(M.EDGE_TIMES_NOT_LOADS, field="edge_times",
-                         value=f"shape {y.shape}", expected=f"{x.size} values per curve")
-    if series is None:
-        names = ["model"] if y2.shape[0] == 1 else [f"curve {i + 1}" for i in
-                                                     range(y2.shape[0])]
-    else:
-        names = [series] if isinstance(series, str) else [str(s) for s in series]
-    if len(names) != y2.shape[0] or len(set(names)) != len(names):
-        raise InputError(M.SERIES_NAMES, field="series",
-                         value=names, expected=f"{y2.shape[0]} distinct names")
-
-    px = py = np.zeros(0)
-    plabels: list[str] = []
-    if points is not None:
-        if len(points) != 3:
-            raise InputError(M.POINTS_FORM, field="points",
-                             value=_short(points), expected="a 3-tuple")
-        px = _array(points[0], "points.loads", ndim=(0, 1)).ravel()
-        py = _array(points[1], "points.times", ndim=(0, 1)).ravel()
-        lab = points[2]
-        plabels = [lab] * px.size if isinstance(lab, str) else [str(s) for s in lab]
-        if not (px.size == py.size == len(plabels)):
-            raise InputError(M.POINTS_LENGTHS,
-                             field="points",
-                             value=f"{px.size}, {py.size}, {len(plabels)}",
-                             expected="equal lengths")
-    op = None
-    if operating is not None:
-        if len(operating) not in (2, 3):
-            raise InputError(M.OPERATING_FORM,
-                             field="operating", value=_short(operating),
-                             expected="a 2- or 3-tuple")
-        op = (_scalar(operating[0], "operating.load", positive=log_x),
-              _scalar(operating[1], "operating.time", positive=log_y),
-              str(operating[2]) if len(operating) == 3 else "operating point")
+    y2, names = _curves(x, edge_times, series)
+    px, py, plabels = _points(points)
+    op = _operating(operating, log_x, log_y)
 
     xs, ys = np.broadcast_to(x, y2.shape), y2
     ok = _keep(xs, ys, positive=(log_x, log_y))
@@ -144,30 +108,86 @@ def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
                    + ([op_rows] if op_rows is not None else []))
     if known is not None:
         return known
+    layers = _layers(rows, pts, op_rows, (x_title, y_title), (log_x, log_y),
+                     (domain, kinds, shapes), curves_title, width)
+    return _titled(_alt().layer(*layers), title, subtitle, width, height)
 
+
+def _curves(x: np.ndarray, edge_times, series) -> tuple[np.ndarray, list[str]]:
+    """The curves as a 2-D array (one row per curve) and their distinct names."""
+    y = _array(edge_times, "edge_times", ndim=(1, 2))
+    y2 = y[np.newaxis, :] if y.ndim == 1 else y
+    if y2.shape[1] != x.size:
+        raise InputError(M.EDGE_TIMES_NOT_LOADS, field="edge_times",
+                         value=f"shape {y.shape}", expected=f"{x.size} values per curve")
+    if series is None:
+        names = ["model"] if y2.shape[0] == 1 else [f"curve {i + 1}" for i in
+                                                     range(y2.shape[0])]
+    else:
+        names = [series] if isinstance(series, str) else [str(s) for s in series]
+    if len(names) != y2.shape[0] or len(set(names)) != len(names):
+        raise InputError(M.SERIES_NAMES, field="series",
+                         value=names, expected=f"{y2.shape[0]} distinct names")
+    return y2, names
+
+
+def _points(points) -> tuple[np.ndarray, np.ndarray, list[str]]:
+    """The datasheet points' loads, times and labels (empty when there are none)."""
+    if points is None:
+        return np.zeros(0), np.zeros(0), []
+    if len(points) != 3:
+        raise InputError(M.POINTS_FORM, field="points",
+                         value=_short(points), expected="a 3-tuple")
+    px = _array(points[0], "points.loads", ndim=(0, 1)).ravel()
+    py = _array(points[1], "points.times", ndim=(0, 1)).ravel()
+    lab = points[2]
+    plabels = [lab] * px.size if isinstance(lab, str) else [str(s) for s in lab]
+    if not (px.size == py.size == len(plabels)):
+        raise InputError(M.POINTS_LENGTHS,
+                         field="points",
+                         value=f"{px.size}, {py.size}, {len(plabels)}",
+                         expected="equal lengths")
+    return px, py, plabels
+
+
+def _operating(operating, log_x: bool, log_y: bool) -> tuple[float, float, str] | None:
+    """The operating point ``(load, time, label)``, or None."""
+    if operating is None:
+        return None
+    if len(operating) not in (2, 3):
+        raise InputError(M.OPERATING_FORM,
+                         field="operating", value=_short(operating),
+                         expected="a 2- or 3-tuple")
+    return (_scalar(operating[0], "operating.load", positive=log_x),
+            _scalar(operating[1], "operating.time", positive=log_y),
+            str(operating[2]) if len(operating) == 3 else "operating point")
+
+
+def _layers(rows, pts, op_rows, titles, logs, legend, curves_title, width) -> list:
+    """The curves, the datasheet points and the operating point (with its values
+    written beside it), as altair layers."""
+    alt = _alt()
+    (x_title, y_title), (log_x, log_y), (domain, kinds, shapes) = titles, logs, legend
+    x, y = _q("load", x_title, log=log_x), _q("t", y_title, log=log_y, channel="y")
     colour = alt.Color("series:N", scale=_scale_pair(domain, series_colours(domain,
                                                                              (OPERATING,))),
                        legend=_legend(curves_title, domain, _plot_room(width)))
     shape = alt.Shape("kind:N", scale=alt.Scale(domain=kinds, range=shapes),
                       legend=_legend("Points", kinds, _plot_room(width)))
     layers = [alt.Chart(_data(rows)).mark_line(strokeWidth=2).encode(
-        x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
-        color=colour, detail=alt.Detail("series:N"))]
+        x=x, y=y, color=colour, detail=alt.Detail("series:N"))]
     tips = [alt.Tooltip("load:Q", title=x_title), alt.Tooltip("t:Q", title=y_title)]
     if pts is not None:
         layers.append(alt.Chart(_data(pts)).mark_point(
             filled=True, size=90, opacity=1).encode(
-            x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
-            color=colour, shape=shape, tooltip=[*tips, alt.Tooltip("series:N", title="part")]))
+            x=x, y=y, color=colour, shape=shape,
+            tooltip=[*tips, alt.Tooltip("series:N", title="part")]))
     if op_rows is not None:
         layers.append(alt.Chart(_data(op_rows)).mark_point(
             filled=True, size=160, opacity=1, color=OPERATING).encode(
-            x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
-            shape=shape, tooltip=tips))
+            x=x, y=y, shape=shape, tooltip=tips))
         # its values written beside it: the cross is read on its own, not off a curve
         layers.append(alt.Chart(_data(op_rows)).mark_text(
             align="left", baseline="middle", dx=9, fontSize=11, fontWeight="bold",
-            color=OPERATING).encode(
-            x=_q("load", x_title, log=log_x), y=_q("t", y_title, log=log_y, channel="y"),
-            text=alt.Text("note:N")))
-    return _titled(alt.layer(*layers), title, subtitle, width, height)
+            color=OPERATING).encode(x=x, y=y, text=alt.Text("note:N")))
+    return layers
