@@ -175,12 +175,29 @@ class BusBuilder(_Panel):
         self.saved_path: Path | None = None
         self._peripherals: list[tuple[str, str]] = []
 
-        parts = self._bus_parts()
-        cats = sorted({p.category for p in parts.values() if p.category != "controller"})
-        fns = sorted({f for p in parts.values() for f in p.functions()} -
-                     set(_OPEN_DRAIN_FUNCTIONS))
-        q = self._quantity
+        self._bus_controls(title, protocol, supply)
+        self._part_controls()
+        self._pullup_controls(length)
+        self._bench_controls()
+        self.window = ChartView()
+        self.figures_html = W.HTML(layout=block_layout())
+        self.checks_html = W.HTML(layout=block_layout())
+        self.notes_html = W.HTML(layout=block_layout())
 
+        self._wire()
+
+        with self._hold():
+            self._filters_changed()
+            if controller in _values(self.controller.options):
+                self.controller.value = controller
+            for pid in peripherals:
+                self.add_peripheral(pid)
+        self.widget = self._layout()
+        self.update()
+
+    def _bus_controls(self, title: str, protocol: str, supply: float) -> None:
+        """The bus: title, protocol, mode, supply and its tolerance."""
+        q = self._quantity
         self.title = W.Text(value=title, description="Title", style=style(),
                             layout=field_layout())
         self.protocol = W.ToggleButtons(options=list(OPEN_DRAIN_PROTOCOLS), value=protocol,
@@ -196,6 +213,13 @@ class BusBuilder(_Panel):
                         lambda _f: self._filters_changed())
         self.supply_tolerance = q(QuantityField("supply_tolerance", "Supply ±", "%", 0.05,
                                                 lo=0.0, hi=0.2, placeholder="5 %"))
+
+    def _part_controls(self) -> None:
+        """The parts: filters, the controller, the peripherals placed."""
+        parts = self._bus_parts()
+        cats = sorted({p.category for p in parts.values() if p.category != "controller"})
+        fns = sorted({f for p in parts.values() for f in p.functions()} -
+                     set(_OPEN_DRAIN_FUNCTIONS))
         self.category = W.Dropdown(options=["any"] + cats, value="any",
                                    description="Category", style=style(),
                                    layout=field_layout())
@@ -214,6 +238,10 @@ class BusBuilder(_Panel):
         self.placed = W.Select(options=[], rows=6, description="Placed", style=style(),
                                layout=field_layout())
         self.remove_button = W.Button(description="Remove", layout=button_layout())
+
+    def _pullup_controls(self, length: float) -> None:
+        """The trace, the extra capacitance and the pull-up."""
+        q = self._quantity
         self.trace = _Trace(self, length=length, max_length=2.0)
         self.extra_capacitance = q(QuantityField("extra_capacitance", "Extra C", "F", 0.0,
                                                  lo=0.0, hi=1e-9, shown=("pF", 1e-12),
@@ -227,6 +255,10 @@ class BusBuilder(_Panel):
                                         style=style(), layout=field_layout())
         self.pullup_tolerance = q(QuantityField("pullup_tolerance", "Rp ±", "%", 0.01,
                                                 lo=0.0, hi=0.2, placeholder="1 %"))
+
+    def _bench_controls(self) -> None:
+        """The bench reading (a measured rise time) and saving the design."""
+        q = self._quantity
         self.rise_measured = q(QuantityField("rise_measured", "Rise measured", "s", None,
                                              lo=0.0, hi=1e-3, shown=("ns", 1e-9),
                                              optional=True, placeholder="e.g. 250 ns"),
@@ -242,11 +274,9 @@ class BusBuilder(_Panel):
                                 style=style(), layout=field_layout())
         self.save_button = W.Button(description="Save", layout=button_layout())
         self.save_error = W.HTML(layout=W.Layout(width="auto"))
-        self.window = ChartView()
-        self.figures_html = W.HTML(layout=block_layout())
-        self.checks_html = W.HTML(layout=block_layout())
-        self.notes_html = W.HTML(layout=block_layout())
 
+    def _wire(self) -> None:
+        """Observers, buttons and the setters of :meth:`set`."""
         self.protocol.observe(self._protocol_changed, names="value")
         for c in (self.category, self.fits_supply, self.function, self.controller):
             c.observe(self._filters_changed, names="value")
@@ -267,15 +297,6 @@ class BusBuilder(_Panel):
         self._setters["pullup"] = self._set_pullup
         self._choice("levels", self.levels)
         self._setters["title"] = lambda v: setattr(self.title, "value", str(v))
-
-        with self._hold():
-            self._filters_changed()
-            if controller in _values(self.controller.options):
-                self.controller.value = controller
-            for pid in peripherals:
-                self.add_peripheral(pid)
-        self.widget = self._layout()
-        self.update()
 
     # ---------------------------------------------------------------- choices
     def _bus_parts(self) -> dict:
