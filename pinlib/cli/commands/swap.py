@@ -131,18 +131,10 @@ def _table(rows) -> list[str]:
 
 
 def run(args) -> int:
-    from pinlib.core.errors import WriteError
-    from pinlib.core.tomlfile import atomic_write, file_lock
     from pinlib.engines.dispatch import check_design
     from pinlib.model.design import load_design
     from pinlib.model.result import CAUTION
-    from pinlib.studies.compare import (
-        DEFAULT_THRESHOLD,
-        compare,
-        figure_rows,
-        snapshot,
-        swapped_text,
-    )
+    from pinlib.studies.compare import DEFAULT_THRESHOLD, compare, figure_rows, snapshot
 
     threshold = DEFAULT_THRESHOLD if args.threshold is None else args.threshold
     swaps = parse_assignments(args.swaps)
@@ -150,19 +142,7 @@ def run(args) -> int:
 
     refused = _refusals(design, swaps)
     if refused:
-        for r in refused:
-            print("pinlib: error: " + M.SWAP_REFUSED.format(ref=r["ref"], new=r["new"],
-                                                            old=r["old"]) + ":",
-                  file=sys.stderr)
-            for reason in r["reasons"]:
-                print(f"  - {reason}", file=sys.stderr)
-        print("pinlib: " + M.DESIGN_NOT_CHANGED.format(path=args.design), file=sys.stderr)
-        if args.json:
-            json.dump({"format": "pinlib.swap/1", "design": design.title,
-                       "path": str(design.path), "refused": refused, "written": False},
-                      sys.stdout, indent=2, ensure_ascii=False)
-            sys.stdout.write("\n")
-        return 2
+        return _report_refusals(args, design, refused)
 
     before = check_design(design)
     after_design = design.with_parts(swaps)
@@ -170,25 +150,8 @@ def run(args) -> int:
     old_snap, new_snap = snapshot(design, before), snapshot(after_design, after)
     changes = compare(old_snap, new_snap, threshold=threshold)
     rows = figure_rows(old_snap, new_snap, threshold=threshold)
-
-    written = False
-    if args.write:
-        text = swapped_text(design, swaps)
-        with file_lock(design.path):
-            now = design.path.read_text(encoding="utf-8")
-            if now != design.text:
-                raise WriteError(M.DESIGN_CHANGED_DURING_SWAP, file=str(design.path),
-                                 hint="run the swap again")
-            if text != design.text:
-                atomic_write(design.path, text)
-                written = True
-
-    lib = design.library
-    swap_rows = []
-    for ref, part_id in swaps.items():
-        _, dev = design.device(ref)
-        new_file = str(lib.path_of(part_id)) if part_id in lib.files else None
-        swap_rows.append({"ref": ref, "old": dev.part_id, "new": part_id, "file": new_file})
+    written = _write(design, swaps) if args.write else False
+    swap_rows = _swap_rows(design, swaps)
 
     if args.json:
         json.dump({"format": "pinlib.swap/1", "design": design.title, "path": str(design.path),
@@ -198,7 +161,69 @@ def run(args) -> int:
                   sys.stdout, indent=2, ensure_ascii=False)
         sys.stdout.write("\n")
         return after.exit_code()
+    out = _text(design, swap_rows, rows, before, after, changes)
+    if written:
+        out.append(f"Wrote {design.path} (only the part of {', '.join(swaps)} changed).")
+    elif args.write:
+        out.append(f"{design.path} already holds these parts; nothing written.")
+    else:
+        out.append("Design file not changed (add --write to apply the substitution).")
+    out.append("")
+    out.append(CAUTION)
+    sys.stdout.write("\n".join(out) + "\n")
+    return after.exit_code()
 
+
+def _report_refusals(args, design, refused: list[dict]) -> int:
+    """Say why each substitution is refused (the design is left as it is): exit 2."""
+    for r in refused:
+        print("pinlib: error: " + M.SWAP_REFUSED.format(ref=r["ref"], new=r["new"],
+                                                        old=r["old"]) + ":",
+              file=sys.stderr)
+        for reason in r["reasons"]:
+            print(f"  - {reason}", file=sys.stderr)
+    print("pinlib: " + M.DESIGN_NOT_CHANGED.format(path=args.design), file=sys.stderr)
+    if args.json:
+        json.dump({"format": "pinlib.swap/1", "design": design.title,
+                   "path": str(design.path), "refused": refused, "written": False},
+                  sys.stdout, indent=2, ensure_ascii=False)
+        sys.stdout.write("\n")
+    return 2
+
+
+def _write(design, swaps: dict) -> bool:
+    """Write the substituted parts into the design file (locked; refused when the file
+    changed since it was read); True when the file changed."""
+    from pinlib.core.errors import WriteError
+    from pinlib.core.tomlfile import atomic_write, file_lock
+    from pinlib.studies.compare import swapped_text
+
+    text = swapped_text(design, swaps)
+    with file_lock(design.path):
+        now = design.path.read_text(encoding="utf-8")
+        if now != design.text:
+            raise WriteError(M.DESIGN_CHANGED_DURING_SWAP, file=str(design.path),
+                             hint="run the swap again")
+        if text == design.text:
+            return False
+        atomic_write(design.path, text)
+        return True
+
+
+def _swap_rows(design, swaps: dict) -> list[dict]:
+    """Each substitution: the position, the old and new part, the new part's file."""
+    lib = design.library
+    out = []
+    for ref, part_id in swaps.items():
+        _, dev = design.device(ref)
+        new_file = str(lib.path_of(part_id)) if part_id in lib.files else None
+        out.append({"ref": ref, "old": dev.part_id, "new": part_id, "file": new_file})
+    return out
+
+
+def _text(design, swap_rows, rows, before, after, changes) -> list[str]:
+    """The substitutions, the figures that moved, the status and the checks and part
+    values behind a change, as lines of text."""
     out = [f"{design.title} ({design.path})", "Substitutions:"]
     for s in swap_rows:
         same = " (unchanged)" if s["old"] == s["new"] else ""
@@ -219,13 +244,4 @@ def run(args) -> int:
             out += ["  " + line for line in pc.lines()]
     out += [f"Note: {n}" for n in changes.notes]
     out.append("")
-    if written:
-        out.append(f"Wrote {design.path} (only the part of {', '.join(swaps)} changed).")
-    elif args.write:
-        out.append(f"{design.path} already holds these parts; nothing written.")
-    else:
-        out.append("Design file not changed (add --write to apply the substitution).")
-    out.append("")
-    out.append(CAUTION)
-    sys.stdout.write("\n".join(out) + "\n")
-    return after.exit_code()
+    return out
