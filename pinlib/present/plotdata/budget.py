@@ -1,0 +1,139 @@
+"""The SPI timing budget's chart data: one stacked bar per requirement."""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
+from pinlib.model.design import Bus, Design
+from pinlib.model.result import check_min
+from pinlib.present.plotdata.common import _require_protocol, workings
+
+
+@dataclass(frozen=True)
+class TimingBudgetData:
+    """The SPI timing budget at the design's clock: one bar per requirement.
+
+    Attributes
+    ----------
+    bus : str
+        The bus. [1]
+    clock, period : float
+        The design's clock and its period. [Hz], [s]
+    rows : list of (str, str, float)
+        ``(path, component, duration)``: what each requirement uses up, in the order it
+        stacks; a credit (an early flight) is negative. [1, 1, s]
+    available : dict of str to float
+        Time available to each path (half a period; a CS lead the controller states). [s]
+    margins : dict of str to float
+        Available minus used time of each path (the check's value minus its limit). [s]
+    status : dict of str to str
+        Each path's check status at the design's warning margin. [1]
+    sources : dict of str to str
+        The source of each path's requirement. [1]
+    """
+
+    bus: str
+    clock: float
+    period: float
+    rows: list
+    available: dict
+    margins: dict
+    status: dict
+    sources: dict
+
+
+# =========================================================================== SPI budget
+
+#: How each SPI requirement's terms stack in the budget bars: ``(key in Term.parts,
+#: sign, component)``.  A term's used time is ``required - b`` (see
+#: :class:`pinlib.engines.spi.Term`): late flights, output delays and the requirement
+#: itself add; early flights (of the clock on setup, of the data on hold) are credits.
+BUDGET_COMPONENTS = {
+    "copi-setup": (("t_valid_controller", 1.0, "output valid (t_valid)"),
+                   ("copi_late", 1.0, "data or CS flight"),
+                   ("sclk_early", -1.0, "SCLK flight"),
+                   ("t_setup", 1.0, "required setup or hold")),
+    "copi-hold": (("sclk_late", 1.0, "SCLK flight"),
+                  ("copi_early", -1.0, "data or CS flight"),
+                  ("t_hold", 1.0, "required setup or hold")),
+    "cipo-setup": (("sclk_late", 1.0, "SCLK flight"),
+                   ("t_valid", 1.0, "output valid (t_valid)"),
+                   ("cipo_late", 1.0, "data or CS flight"),
+                   ("bridges_round_trip", 1.0, "bridging parts"),
+                   ("t_setup_controller", 1.0, "required setup or hold")),
+    "cipo-hold": (("sclk_early", -1.0, "SCLK flight"),
+                  ("cipo_early", -1.0, "data or CS flight"),
+                  ("t_hold_controller", 1.0, "required setup or hold")),
+    "cs-setup": (("cs_late", 1.0, "data or CS flight"),
+                 ("sclk_early", -1.0, "SCLK flight"),
+                 ("t_cs_setup", 1.0, "required setup or hold")),
+}
+
+
+def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudgetData:
+    """The SPI timing budget at the design's clock, as stacked bars.
+
+    Parameters
+    ----------
+    bus : Bus
+        An ``spi`` bus of ``design``. [1]
+    design : Design
+        The loaded design. [1]
+    analysis : BusResult or SpiAnalysis, optional
+        The bus's result (or :func:`pinlib.engines.spi.spi_analysis` of the bus), to
+        reuse (see :func:`workings`). [1]
+
+    Returns
+    -------
+    TimingBudgetData
+        One path per requirement the engine checks (``copi-setup U7``...), each with
+        the components it uses up, the time available and the margin.
+
+    Notes
+    -----
+    Every requirement of :func:`pinlib.engines.spi.budget_terms` is
+    ``a T + b >= required``.  The bar of a path stacks ``required - b`` split into
+    its terms (:data:`BUDGET_COMPONENTS`) against the available ``a T`` (half a
+    period), or against the controller's stated CS lead for ``cs-setup``; the margin
+    is the engine's ``Term.margin(T)``.  The status is the engine's own check
+    (:func:`pinlib.model.result.check_min` at the design's warning margin).
+    """
+    _require_protocol(bus, ("spi",), "a timing budget")
+    analysis = workings(bus, design, analysis)
+    clock = float(bus.clock)
+    period = 1.0 / clock
+    rows, avail, margins, status, sources = [], {}, {}, {}, {}
+    for term in analysis.terms:
+        path = f"{term.id} {term.subject}"
+        lead = term.parts.get("lead")
+        lead_s = float(lead) if isinstance(lead, (int, float)) else 0.0
+        used = 0.0
+        for key, sign, comp in BUDGET_COMPONENTS[term.id]:
+            value = term.parts.get(key)
+            if value is None or isinstance(value, str):
+                continue
+            if key == "bridges_round_trip" and value == 0.0:
+                continue
+            rows.append((path, comp, sign * float(value)))
+            used += sign * float(value)
+        available = term.a * period + lead_s
+        margin = float(term.margin(period))
+        # The split must add up to the engine's own margin; a change in Term.parts that
+        # this table does not know would show here rather than draw a wrong bar.
+        if not math.isclose(available - used, margin, rel_tol=1e-9,
+                            abs_tol=1e-6 * max(abs(available), 1e-15)):
+            raise InputError(M.BUDGET_DOES_NOT_ADD_UP,
+                             field=f"{term.id} {term.subject}",
+                             value=f"{available - used!r} against {margin!r}",
+                             expected="pinlib.present.plotdata.BUDGET_COMPONENTS to match "
+                                      "pinlib.engines.spi.budget_terms")
+        avail[path] = available
+        margins[path] = margin
+        chk = check_min(term.id, float(term.available(period)), term.required, "s",
+                        term.source, "", warn_margin=design.warn_margin)
+        status[path] = chk.status
+        sources[path] = term.source or "not recorded by the part: taken as 0"
+    return TimingBudgetData(bus.id, clock, period, rows, avail, margins, status, sources)

@@ -1,0 +1,297 @@
+"""A push-pull line's chart data: edge time against load, and far-end waveforms."""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from pinlib.core.quantity import format_si
+from pinlib.model.design import Bus, Design
+from pinlib.physics import driver as drv
+from pinlib.present.plotdata.common import (
+    _LOAD_POINTS,
+    _SETTLE_BAND,
+    _WAVE_POINTS,
+    _WINDOW_PAD,
+    _case,
+    _line,
+)
+
+
+@dataclass(frozen=True)
+class EdgeLoadData:
+    """A driver's edge time against load, its datasheet points and its operating point.
+
+    Attributes
+    ----------
+    bus, signal, driver : str
+        The bus, the line and the driving device's reference designator. [1]
+    loads : numpy.ndarray
+        Load capacitances of the curves. [F]
+    curves : dict of str to numpy.ndarray
+        Edge time of the driver model (:func:`pinlib.physics.driver.edge_vs_load`, a
+        lumped load at the pin) at each load, by curve name (edge, measuring levels and
+        series resistor, e.g. ``"rise 10-90"``, ``"fall 10-90, Rs 33 Ω"``). [s]
+    points : tuple of (numpy.ndarray, numpy.ndarray, list of str)
+        The pin's datasheet edge points: loads [F], times [s] and for each the name of
+        the curve it belongs to. [F, s, 1]
+    operating : tuple of (float, float)
+        The engine's operating point: the line's load (trace and far-end pins,
+        ``load_capacitance``) and the 10–90 % rise at the far end of the real line (the
+        line engine's waveform, ``edge_rise_time``). [F, s]
+    operating_fall : float
+        The far-end 10–90 % fall on the same line. [s]
+    rs : float
+        Series resistor on the line. [Ω]
+    model : str
+        ``"lumped"`` or ``"distributed"``: how the engine solved the line. [1]
+    operating_label : str
+        What the operating point is, for a legend: the far end of this line and the
+        model the engine solved it with. [1]
+    curves_title : str
+        What the curves are, for a legend title. [1]
+    subtitle : str
+        A chart subtitle saying which to read: the curves (the driver into a lumped
+        load at its pin) or the operating point (the engine's far end on the line). [1]
+    """
+
+    bus: str
+    signal: str
+    driver: str
+    loads: np.ndarray
+    curves: dict
+    points: tuple
+    operating: tuple
+    operating_fall: float
+    rs: float
+    model: str
+    operating_label: str = "far end of this line"
+    curves_title: str = "Driver model into a lumped load"
+    subtitle: str = ""
+
+
+@dataclass(frozen=True)
+class WaveformData:
+    """Far-end waveforms of one driver on one line, with the receivers' thresholds.
+
+    Attributes
+    ----------
+    bus, signal, driver : str
+        The bus, the line and the driving device. [1]
+    t : numpy.ndarray
+        Time from the start of the driver's source ramp. [s]
+    traces : dict of str to numpy.ndarray
+        Far-end voltage of each edge, with the line's series resistor and without it
+        (``"rise, Rs 33 Ω"``, ``"rise, no series R"``...). [V]
+    v_il, v_ih : float
+        The lowest VIL and the highest VIH of the receivers on the line (the widest
+        undefined band), each at its device's supply. [V]
+    vdd : float
+        The high level the line settles to. [V]
+    receivers : list of str
+        The receiving pins the thresholds come from. [1]
+    overshoot, undershoot : dict of str to float
+        Peak above the high level of each rise and dip below the low level of each
+        fall, by trace name, as the line engine measured them. [V]
+    notes : list of str
+        What the data leaves out. [1]
+    """
+
+    bus: str
+    signal: str
+    driver: str
+    t: np.ndarray
+    traces: dict
+    v_il: float
+    v_ih: float
+    vdd: float
+    receivers: list
+    overshoot: dict
+    undershoot: dict
+    notes: list = field(default_factory=list)
+
+
+# =========================================================================== push-pull
+
+
+def _curve_name(edge: str, levels: str, rs: float) -> str:
+    name = f"{edge} {levels}"
+    return name + (f", Rs {format_si(rs, 'Ω')}" if rs > 0 else "")
+
+
+def edge_vs_load_data(bus: Bus, design: Design, signal: str, *, driver: str | None = None,
+                      analysis=None, points: int = _LOAD_POINTS) -> EdgeLoadData:
+    """Edge time against load for the driver of a push-pull line.
+
+    Parameters
+    ----------
+    bus : Bus
+        An ``spi`` or ``gpio`` bus of ``design``. [1]
+    design : Design
+        The loaded design. [1]
+    signal : str
+        The routed line, e.g. ``"sclk"``. [1]
+    driver : str, optional
+        Reference designator of the driving device; the line's first driver by
+        default (a CIPO line has one per peripheral). [1]
+    analysis : BusResult, SpiAnalysis or dict, optional
+        The bus's result, or the lines already solved (:func:`line_analyses`). [1]
+    points : int, optional
+        Number of loads on each curve. [1]
+
+    Returns
+    -------
+    EdgeLoadData
+        Curves of the driver model (rise and fall at 10–90 % and at the levels of any
+        datasheet point, and at 10–90 % with the line's series resistor), the datasheet
+        points, the engine's operating point, and labels that say which is which.
+
+    Notes
+    -----
+    The curves are :func:`pinlib.physics.driver.edge_vs_load` of the driver model the
+    line engine built (:func:`pinlib.physics.driver.driver_from_pin`, fitted to the
+    pin's datasheet edges): a ramp behind ``r_out`` into a lumped load at the pin.  The
+    operating point is the engine's far-end edge on the real line (a transmission
+    line where the engine found one), so it can sit off the lumped curves: the gap is
+    what the line does.  Loads run from 0 to 1.25 times the largest of the line's load,
+    the datasheet loads and 20 pF.
+    """
+    la = _line(bus, design, signal, analysis)
+    ref, case = _case(la, driver)
+    model = la.models[ref]
+    pin = case.driver.pin
+    load0 = float(la.trace_c + case.c_far)
+    edges = [e for e in pin.edges]
+    pts_x, pts_y, pts_n = [], [], []
+    for e in edges:
+        for which in ("rise", "fall"):
+            got = getattr(e, which)
+            if got is not None:
+                pts_x.append(float(e.load.at()))
+                pts_y.append(float(got.at()))
+                pts_n.append(_curve_name(which, e.levels, 0.0))
+    levels = ["10-90"] + sorted({e.levels for e in edges} - {"10-90"})
+    top = 1.25 * max([load0, 20e-12] + pts_x)
+    loads = np.linspace(0.0, top, max(int(points), 2))
+    # The datasheet's levels without the series resistor (where its points are); the
+    # resistor's curves at 10-90 %, the levels the line's checks use.
+    wanted = [(0.0, lv) for lv in levels] + ([(la.rs, "10-90")] if la.rs > 0 else [])
+    curves = {}
+    for rs, lv in wanted:
+        for edge in ("rise", "fall"):
+            curves[_curve_name(edge, lv, rs)] = np.asarray(
+                drv.edge_vs_load(model, loads, edge, lv, r_series=rs), dtype=float)
+    kind = "distributed" if case.distributed else "lumped"
+    line_model = "transmission-line model" if case.distributed else "lumped model"
+    return EdgeLoadData(
+        bus.id, signal, ref, loads, curves, (np.array(pts_x), np.array(pts_y), pts_n),
+        (load0, float(case.rise.t_edge)), float(case.fall.t_edge), float(la.rs), kind,
+        operating_label=f"far end of this line ({line_model})",
+        curves_title="Driver model into a lumped load at its pin",
+        subtitle=("Curves: the driver alone into a lumped load (datasheet conditions). "
+                  f"Cross: the rise at the far end of this line ({line_model}), the "
+                  "figure the checks use."))
+
+
+def _receiver_levels(la, ref: str) -> tuple[float, float, list[str]]:
+    """Lowest VIL and highest VIH of the line's receivers other than the driver; a
+    receiver without thresholds switches at half its supply, as in the line engine
+    (:meth:`pinlib.engines.pushline.DriveCase.flight`)."""
+    lows, highs, names = [], [], []
+    for rx in la.receivers:
+        if rx.ref == ref:
+            continue
+        v_il, v_ih = rx.level("v_il"), rx.level("v_ih")
+        half = 0.5 * rx.vdd
+        lows.append(half if v_il is None else v_il)
+        highs.append(half if v_ih is None else v_ih)
+        names.append(rx.label)
+    return (min(lows) if lows else math.nan), (max(highs) if highs else math.nan), names
+
+
+def _window_end(waves) -> float:
+    """Where the chart's time axis ends: past the moment the slowest trace settles."""
+    end = 0.0
+    record = max(float(w.t[-1]) for w in waves)
+    for w in waves:
+        swing = abs(w.v_to - w.v_from)
+        outside = np.flatnonzero(np.abs(w.v - w.v_to) > _SETTLE_BAND * swing)
+        if outside.size:
+            end = max(end, float(w.t[min(int(outside[-1]) + 1, w.t.size - 1)]))
+    return min(_WINDOW_PAD * end, record) if end > 0 else record
+
+
+def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None = None,
+                  analysis=None, points: int = _WAVE_POINTS) -> WaveformData:
+    """Far-end waveforms of a push-pull line, with and without its series resistor.
+
+    Parameters
+    ----------
+    bus : Bus
+        An ``spi`` or ``gpio`` bus of ``design``. [1]
+    design : Design
+        The loaded design. [1]
+    signal : str
+        The routed line. [1]
+    driver : str, optional
+        The driving device; the line's first driver by default. [1]
+    analysis : BusResult, SpiAnalysis or dict, optional
+        The bus's result, or the lines already solved (:func:`line_analyses`). [1]
+    points : int, optional
+        About how many samples each trace gets on the chart. [1]
+
+    Returns
+    -------
+    WaveformData
+        Rise and fall at the far end: with the line's series resistor (the engine's
+        final case) and without it, when the line has one.
+
+    Notes
+    -----
+    The traces are the line engine's own waveforms (:class:`DriveCase` of
+    :func:`pinlib.engines.pushline.analyse_line`): with ``series_resistor = "auto"`` the
+    engine keeps the case without the resistor it chose; with a fixed resistor the
+    engine solves the case without it on request
+    (:meth:`pinlib.engines.pushline.LineAnalysis.without_series`: push-pull drivers; for
+    an open-drain driver it is left out and a note says so). Each solver record has its
+    own time grid; the traces are put on one grid (uniform over the window, plus each
+    trace's own peak and dip sample so that the drawn overshoot is the measured one) by
+    linear interpolation, holding a record's last (settled, within 1 %) value past its
+    end. The window ends 30 % past the moment the slowest trace stays within 2 % of its
+    final level.
+    """
+    la = _line(bus, design, signal, analysis)
+    ref, case = _case(la, driver)
+    notes: list[str] = []
+    cases = {}
+    if la.rs > 0:
+        shown = format_si(la.rs, "Ω")
+        cases[f"Rs {shown}"] = case
+        bare = la.without_series(ref)
+        if bare is not None:
+            cases["no series R"] = bare
+        else:
+            notes.append("the open-drain driver's case without the series resistor is not "
+                         "drawn")
+    else:
+        cases["no series R"] = case
+    waves = {f"{edge}, {name}": c.wave(edge) for name, c in cases.items()
+             for edge in ("rise", "fall")}
+    end = _window_end(list(waves.values()))
+    grid = [np.linspace(0.0, end, max(int(points), 2))]
+    for w in waves.values():
+        for k in (int(np.argmax(w.v)), int(np.argmin(w.v))):
+            if w.t[k] <= end:
+                grid.append(np.array([w.t[k]]))
+    t = np.unique(np.concatenate(grid))
+    traces = {name: np.interp(t, w.t, w.v) for name, w in waves.items()}
+    v_il, v_ih, rx = _receiver_levels(la, ref)
+    if not rx:
+        notes.append("no receiving input on the line other than the driver")
+    vdd = float(case.v_high)
+    over = {n: float(w.overshoot) for n, w in waves.items() if w.edge == "rise"}
+    under = {n: float(w.undershoot) for n, w in waves.items() if w.edge == "fall"}
+    return WaveformData(bus.id, signal, ref, t, traces, v_il, v_ih, vdd, rx, over, under,
+                        notes)
