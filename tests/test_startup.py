@@ -57,3 +57,31 @@ def test_the_program_returns_mains_code_and_freezes_what_is_left(monkeypatch):
     monkeypatch.setattr(gc, "freeze", lambda: froze.append(True))
     assert cli.entry() == 3
     assert froze == [True]
+
+
+def test_the_program_runs_blas_on_one_thread_unless_the_user_chose(monkeypatch):
+    import sys
+
+    for var in startup.BLAS_VARIABLES:
+        monkeypatch.delenv(var, raising=False)
+    monkeypatch.setattr(startup, "_blas_set_here", False)
+    monkeypatch.delitem(sys.modules, "numpy")  # as in a fresh process (restored after)
+    startup.one_blas_thread()
+    assert os.environ["OPENBLAS_NUM_THREADS"] == "1"
+    assert "OPENBLAS_NUM_THREADS" not in startup.child_environment()
+    monkeypatch.delenv("OPENBLAS_NUM_THREADS")
+    monkeypatch.setattr(startup, "_blas_set_here", False)
+    monkeypatch.setenv("OMP_NUM_THREADS", "4")  # the user's choice wins
+    startup.one_blas_thread()
+    assert "OPENBLAS_NUM_THREADS" not in os.environ
+    assert startup.child_environment()["OMP_NUM_THREADS"] == "4"
+
+
+def test_with_numpy_loaded_the_thread_count_is_left_alone(monkeypatch):
+    import numpy  # noqa: F401
+
+    for var in startup.BLAS_VARIABLES:
+        monkeypatch.delenv(var, raising=False)
+    monkeypatch.setattr(startup, "_blas_set_here", False)
+    startup.one_blas_thread()
+    assert "OPENBLAS_NUM_THREADS" not in os.environ

@@ -14,7 +14,7 @@ import importlib
 import sys
 
 from pinlib import __version__
-from pinlib.cli.startup import pydantic_plugins_off
+from pinlib.cli.startup import one_blas_thread, pydantic_plugins_off
 from pinlib.core.errors import PinlibError
 
 __all__ = ["main", "entry", "COMMANDS"]
@@ -63,7 +63,11 @@ def entry() -> int:
     free memory the ending process gives back anyway.  The atexit handlers (the fit
     store) and the flushing of standard output run as before; pinlib's own files are
     closed by then.  Callers of :func:`main` in a process that goes on are untouched.
+
+    numpy's BLAS runs on one thread in this process (why, and how a user chooses
+    otherwise: :func:`pinlib.cli.startup.one_blas_thread`).
     """
+    one_blas_thread()
     code = main()
     gc.freeze()
     return code
