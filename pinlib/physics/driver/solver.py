@@ -296,4 +296,3 @@ def _flat_ramp_limit(problem: _Problem, r_out: float, t_ramp: float, t_hi: float
         lo, hi = (mid, hi) if same(mid) else (lo, mid)
     # A limit this small against the slowest point is rounding, not a flat stretch.
     return lo if lo > 1e-6 * problem.t_ref else 0.0
-
