@@ -19,13 +19,12 @@ point — at most ``v_ol`` while sinking ``i_ol`` — is used two ways:
 
 Modules: ``levels`` (static levels and currents), ``edges`` (rise, fall, SCL frequency,
 capacitance from a measured rise), ``sizing`` (margins and limits for choosing Rp),
-``budget`` (the whole budget of one line) and ``inputs`` (the shared input checks); this
+``line_budget`` (the whole budget of one line) and ``inputs`` (the shared input checks); this
 package re-exports their names.
 """
 
 from __future__ import annotations
 
-from pinlib.physics.pullup.budget import Budget, budget  # noqa: F401
 from pinlib.physics.pullup.edges import (  # noqa: F401
     _current_source_fall,
     _log1p_over,
@@ -50,6 +49,7 @@ from pinlib.physics.pullup.levels import (  # noqa: F401
     static_power,
     translator_low_levels,
 )
+from pinlib.physics.pullup.line_budget import Budget, budget  # noqa: F401
 from pinlib.physics.pullup.sizing import (  # noqa: F401
     cb_limit,
     current_source_needed,
