@@ -443,9 +443,11 @@ def test_docstring_parameters_match_signature_and_carry_units(func):
 
 
 def test_docstring_examples():
-    result = doctest.testmod(driver, optionflags=doctest.NORMALIZE_WHITESPACE)
-    assert result.attempted > 0
-    assert result.failed == 0
+    # the package and the modules that hold its functions
+    results = [doctest.testmod(module, optionflags=doctest.NORMALIZE_WHITESPACE)
+               for module in (driver, driver.model, driver.solver, driver.fitting, driver.pin)]
+    assert sum(result.attempted for result in results) > 0
+    assert sum(result.failed for result in results) == 0
 
 
 # --------------------------------------------------------------------------- ngspice

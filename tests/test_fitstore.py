@@ -13,6 +13,7 @@ import pytest
 
 from pinlib.engines import fitstore
 from pinlib.physics import driver
+from pinlib.physics.driver import fitting
 
 DEMO = Path(__file__).resolve().parents[1] / "workbooks" / "designs" / "demo-board.toml"
 LOADS = [10e-12, 30e-12, 50e-12]
@@ -34,7 +35,7 @@ def test_a_stored_fit_is_the_computed_one_bit_for_bit(store, monkeypatch):
     # a new process: nothing in memory, the file read back
     monkeypatch.setattr(driver, "_FIT_CACHE", type(driver._FIT_CACHE)())
     monkeypatch.setattr(driver, "FIT_STORE", fitstore.FitStore(store.path, store.version))
-    monkeypatch.setattr(driver, "_solve", lambda *a, **k: pytest.fail("fitted again"))
+    monkeypatch.setattr(fitting, "_solve", lambda *a, **k: pytest.fail("fitted again"))
     again = driver.fit_driver(LOADS, TIMES)
     assert again.r_out == fresh.r_out and again.t_ramp == fresh.t_ramp
     assert np.array_equal(again.residuals, fresh.residuals)

@@ -9,7 +9,7 @@ reads them back on the next run:
 
 * **Key.**  Each fit is stored under a digest of its inputs
   (:func:`pinlib.physics.driver.fit_key`); the file as a whole carries a digest of the
-  source of the modules that compute fits (``physics/driver.py`` and ``physics/rc.py``),
+  source of the modules that compute fits (``physics/driver/*.py`` and ``physics/rc.py``),
   and a file written by other code is ignored.  A stored fit is therefore the one a new
   computation would give, bit for bit.
 * **Where.**  ``$PINLIB_CACHE_DIR/fits.json``; without it ``$XDG_CACHE_HOME/pinlib``, else
@@ -45,8 +45,8 @@ def code_version() -> str:
     from pinlib.physics import driver, rc
 
     h = hashlib.sha256()
-    for module in (driver, rc):
-        h.update(Path(module.__file__).read_bytes())
+    for path in (*sorted(Path(driver.__file__).parent.glob("*.py")), Path(rc.__file__)):
+        h.update(path.read_bytes())
     return h.hexdigest()[:20]
 
 
