@@ -89,6 +89,7 @@ class PinData:
     pullup_internal: Any | None  # [Ω] counted only when the design enables it
     off_tolerant: Any
     t_of_min: Any | None   # [s]
+    t_of_max: Any | None   # [s]
 
 
 @dataclass
@@ -130,6 +131,7 @@ def _pin_data(pin, name: str, part: Part, dev: Device, lim: OpenDrainLimits,
         pullup_internal=internal,
         off_tolerant=bool(pin.off_tolerant),
         t_of_min=float(pin.t_of_min.value) if pin.t_of_min is not None else None,
+        t_of_max=float(pin.t_of_max.value) if pin.t_of_max is not None else None,
     )
 
 
@@ -194,7 +196,7 @@ def structure(part: Part, dev: Device, bus: Bus, lim: OpenDrainLimits | None = N
                     pin.v_il is not None or pin.v_ih is not None or not quiet,
                     pin.abs_max is None, pin.pullup is None,
                     not (dev.internal_pullups and pin.pullup_internal is not None),
-                    pin.t_of_min is None))
+                    pin.t_of_min is None, pin.t_of_max is None))
     t = part.timing
     key.append((t.f_max is None, t.t_low is None, t.t_high is None,
                 part.supply_for(dev.side) is None))
