@@ -638,6 +638,13 @@ def test_fall_time_from_the_parts_own_t_of_max(tmp_path):
     assert chk.value == pytest.approx(150e-9, rel=1e-12)
     assert chk.details["bound"] == "t_of_max of its part"
     assert "t-target-tof pins.sda.t_of_max" in chk.details["bound_source"]
+    # a pull-up stronger than the sink's rating (derived: 5 V / 1 kΩ = 5 mA > 3 mA) is no
+    # load the part's guarantee covers: the sink's own bound stays
+    res = bus_result(tmp_path, one_bus(mode="standard", supply="5 V", extra="300 pF",
+                                       pullup="1 kΩ", devices=devices))
+    chk = _fall(res)
+    assert chk.details["bound"] == "constant sink current"
+    assert "more than its IOL" in chk.details["tof_not_used"]
 
 
 def test_fall_time_bound_is_the_same_in_batches(tmp_path):

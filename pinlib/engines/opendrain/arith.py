@@ -73,14 +73,15 @@ def _stated_tof(d):
     return None if t is None else getattr(t, "value", t)
 
 
-def output_fall(lim, d, cb, v, link):
+def output_fall(lim, d, cb, v, link, rp_lo):
     """The output fall time that bounds driver ``d`` by itself, where one does.
 
     A driver's part may state ``t_of_max``; else on an I2C bus a driver whose sink meets
     the mode's (VOL, IOL) point claims a compliant output stage of that mode, whose fall
     from 0.7·VDD to 0.3·VDD (the bus's measuring levels) UM10204 table 9 bounds by tof
-    for a bus capacitance inside the table's range.  Either holds at the pin: not through
-    a series resistor or a translator's on-resistance.
+    for a bus capacitance inside the table's range.  Either holds at the pin (not through
+    a series resistor or a translator's on-resistance) and under a legal load: the
+    pull-up (at −tolerance, ``rp_lo``) draws at most the driver's IOL at its VOL.
 
     Returns
     -------
@@ -94,23 +95,30 @@ def output_fall(lim, d, cb, v, link):
     if link is not None:
         return None, BY_SINK, f"it pulls the line through {link.dev.ref}'s on-resistance"
     stated = _stated_tof(d)
-    bare = np.asarray(d.r_series) == 0
-    if stated is not None:
-        t = np.where(bare, np.asarray(stated, dtype=float), np.inf)
-        return t, BY_PART, "" if np.all(bare) else "its t_of_max holds at the pin, not " \
-            "through its series resistor"
     spec = lim.output_fall()
-    if spec is None:
+    if stated is None and spec is None:
         return None, BY_SINK, "SMBus states no output fall time"
-    vol, iol = lim.sink_point(v)
-    meets = (np.asarray(d.i_ol) >= iol) & (np.asarray(d.v_ol) <= vol)
-    inside = (np.asarray(cb) >= spec.cb_min) & (np.asarray(cb) <= spec.cb_max)
-    ok = meets & inside & bare
-    why = ("" if np.all(ok) else
-           "its series resistor: tof holds at the pin" if not np.all(bare) else
-           "its sink point is weaker than the mode's (VOL, IOL)" if not np.all(meets) else
-           f"Cb outside the {spec.cb_min * 1e12:g}–{spec.cb_max * 1e12:g} pF of the guarantee")
-    return np.where(ok, spec.t_max, np.inf), BY_SPEC, why
+    bare = np.asarray(d.r_series) == 0
+    legal = (v - d.v_ol) / rp_lo <= d.i_ol
+    checks = [(bare, "its series resistor: the output fall time holds at the pin"),
+              (legal, "the pull-up draws more than its IOL at VOL")]
+    if stated is not None:
+        t, kind = np.asarray(stated, dtype=float), BY_PART
+    else:
+        vol, iol = lim.sink_point(v)
+        checks.append(((np.asarray(d.i_ol) >= iol) & (np.asarray(d.v_ol) <= vol),
+                       "its sink point is weaker than the mode's (VOL, IOL)"))
+        checks.append(((np.asarray(cb) >= spec.cb_min) & (np.asarray(cb) <= spec.cb_max),
+                       f"Cb outside the {spec.cb_min * 1e12:g}–{spec.cb_max * 1e12:g} pF of "
+                       "the guarantee"))
+        t, kind = np.asarray(spec.t_max, dtype=float), BY_SPEC
+    ok = np.asarray(True)
+    why = ""
+    for cond, reason in checks:
+        ok = ok & cond
+        if not why and not np.all(cond):
+            why = reason
+    return np.where(ok, t, np.inf), kind, why
 
 
 def fall_bounds(lim, rp_lo, cb, v, drivers, far, segs, signal: str) -> list:
@@ -133,7 +141,7 @@ def fall_bounds(lim, rp_lo, cb, v, drivers, far, segs, signal: str) -> list:
     for d, link, r_s in pairs:
         t_sink = np.asarray(pu.fall_time_bound(rp_lo, cb, v, d.v_ol, d.i_ol, v_hi, v_lo, r_s),
                             dtype=float)
-        t_of, kind, why = output_fall(lim, d, cb, v, link)
+        t_of, kind, why = output_fall(lim, d, cb, v, link, rp_lo)
         t = t_sink if t_of is None else np.minimum(t_sink, t_of)
         out.append((t, d, link, {"t_sink": t_sink, "t_of": t_of, "kind": kind, "why": why}))
     return out
