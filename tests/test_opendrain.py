@@ -3,6 +3,7 @@ a published application-note example, ngspice and the eseries package."""
 
 from __future__ import annotations
 
+import json
 import math
 from pathlib import Path
 
@@ -666,3 +667,55 @@ def test_fall_time_bound_is_the_same_in_batches(tmp_path):
         # derived: the array path equals the one-bus path (no tolerance drawn)
         assert all(float(x) == pytest.approx(engine[0].value, rel=1e-12)
                    for x in falls[0].values)
+
+
+# --------------------------------------------------------------------------- issue 13.3
+
+TRANSLATOR_CABLE = Path(__file__).parent / "data" / "translator-cable.toml"
+
+
+def test_auto_across_a_translator_when_no_value_fits():
+    # reproducer: a 1.8 V sensor (2 mA at 0.2·VDD) at the end of a 1.5 m cable (243.5 pF,
+    # legal for Fast-mode Plus) behind a pass-transistor translator; auto used to pick
+    # 10 Ω on both segments with Rp(min) infinite
+    res = check_design(load_design(TRANSLATOR_CABLE)).bus("x")
+    high, low = res.segments
+    # derived from UM10204 rev. 6 eq. 1: 120 ns / (0.8473 · 243.5 pF) = 581.6 Ω
+    assert low.figures["rp_max"].value == pytest.approx(581.6, abs=0.1)
+    # derived from UM10204 rev. 6 eq. 2: (1.89 V − 0.378 V) / 2 mA = 756 Ω, the low side's
+    # own sinks alone: no value fits, as on a single segment
+    window = next(c for c in low.checks if c.id == "pullup-window" and c.subject == "SDA")
+    assert window.status == "fail"
+    assert "no resistor fits: Rp(max) 582 Ω" in window.fix and "Rp(min) 756 Ω" in window.fix
+    assert "compromise" in window.fix
+    # the compromise lies between the two (E24, derived from the auto rule), not at 10 Ω
+    assert 581.6 < low.figures["pullup_resistor"].value < 756.0
+    # the high side has its own window [1.02 kΩ, 9.44 kΩ] (derived: (3.465 − 0.4)/3 mA and
+    # 120 ns/(0.8473 · 15 pF)) and keeps its own choice
+    assert 1.02e3 < high.figures["pullup_resistor"].value < 9.44e3
+    assert any("the last value its window allowed" in n for n in high.notes)
+    # the SDA sink across the translator is named as the cause, not the translator current
+    hw = next(c for c in high.checks if c.id == "pullup-window" and c.subject == "SDA")
+    assert "segment low has no window of its own" in hw.fix
+    # no infinity reaches the reader as a number
+    text = json.dumps(res.to_json(), ensure_ascii=False)
+    assert "inf" not in text.replace("info", "") and "Infinity" not in text
+
+
+def test_auto_across_a_translator_batch_agrees(tmp_path):
+    from pinlib.studies import whatif
+
+    body = TRANSLATOR_CABLE.read_text(encoding="utf-8").replace('"5 %"', '"0 %"')
+    body = body.replace('"1 %"', '"0 %"').replace('library = ["parts"]',
+                                                  f'library = ["{PARTS.as_posix()}"]')
+    path = tmp_path / "d.toml"
+    path.write_text(body, encoding="utf-8")
+    d = load_design(path)
+    engine = check_design(d).bus("x")
+    mc = whatif.monte_carlo(d, 4, seed=1)
+    mine = [c for c in mc.checks if c.bus == "x" and c.id == "pullup-window"]
+    theirs = [c for s in engine.segments for c in s.checks if c.id == "pullup-window"]
+    assert len(mine) == len(theirs) == 4
+    for e, m in zip(theirs, mine, strict=True):
+        # derived: the array path chooses the same pull-ups and the same windows
+        assert all(float(x) == pytest.approx(e.value, rel=1e-12) for x in m.values)

@@ -94,7 +94,9 @@ def _window_check(ctx: Context, seg_in: SegmentInputs, ln: LineInputs) -> Check:
                "definition": lim.rise_definition, "auto": seg_in.auto}
     shown = (f"{_f(r_eff, 'Ω')} ({' ∥ '.join(_f(c['value'], 'Ω') for c in contributors)})"
              if ln.part_pullups else _f(r_eff, 'Ω'))
-    window = f"[{_f(ln.rp_min, 'Ω')}, {_f(ln.rp_max, 'Ω')}]"
+    lo_text = _f(ln.rp_min, 'Ω') if np.isfinite(ln.rp_min) else "none (no value: see below)"
+    hi_text = _f(ln.rp_max, 'Ω') if np.isfinite(ln.rp_max) else "no upper limit"
+    window = f"[{lo_text}, {hi_text}]"
     if m_lo <= m_hi:
         chk = check_min("pullup-window", r_eff * (1 - tol), ln.rp_min, "Ω", src,
                         f"{up} pull-up {shown} at −{tol:.0%}: {_f(r_eff * (1 - tol), 'Ω')} "
@@ -254,7 +256,11 @@ def _sink_checks(lc: _LineCtx, levels: list, offset_levels: list) -> list[Check]
                             f"{_f(d.i_ol, 'A')} at {_f(float(d.v_ol[1]), 'V')}",
                             details={"drivers": {x[2].tap.label: x[1] for x in rows}},
                             **ctx.kw(subject=f"{up} {d.tap.label}"))
-            if chk.status == "fail":
+            if chk.status == "fail" and not np.isfinite(ln.rp_min):
+                chk.fix = ("no pull-up on this segment helps: the pull-ups across the translator "
+                           "alone draw more than the weakest sink's rating (see pullup-window)")
+                chk.message += f"; {chk.fix}"
+            elif chk.status == "fail":
                 chk.fix = (f"raise the effective pull-up to at least "
                            f"{_f(ln.rp_min / (1 - tol), 'Ω')} (Rp(min) at −{tol:.0%})")
                 chk.message += f"; {chk.fix}"
