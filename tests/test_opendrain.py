@@ -719,3 +719,37 @@ def test_auto_across_a_translator_batch_agrees(tmp_path):
     for e, m in zip(theirs, mine, strict=True):
         # derived: the array path chooses the same pull-ups and the same windows
         assert all(float(x) == pytest.approx(e.value, rel=1e-12) for x in m.values)
+
+
+# --------------------------------------------------------------------------- issue 13.8
+
+
+def test_gate_drive_margin_is_in_volts_and_v_ol_says_it_is_conditional(tmp_path):
+    from pinlib.model.result import margin_text
+
+    # reproducer: 1.41 V low rail, gate threshold 1.2 V (test part, invented): 210 mV
+    res = bus_result(tmp_path, translator_bus(low="1.41 V"))
+    gate = res.segments[1].check("bridge-gate-drive")
+    # derived: 1.41 V − 1.2 V; the rule of thumb of 1 V is common practice, no source
+    assert gate.value == pytest.approx(0.21, abs=1e-12)
+    assert gate.status == "warn"
+    assert gate.margin_unit == "V" and margin_text(gate) == "+210 mV"
+    assert gate.to_json()["margin_unit"] == "V"
+    assert gate.details["warn_below"] == pytest.approx(1.0)  # common practice, no source
+    # every low level taken through that on-resistance says it holds only if it is assured
+    for seg in res.segments:
+        for c in seg.checks:
+            if c.id == "v-ol":
+                assert "conditional" in c.details and "not assured" in c.message
+    # with a logic-level MOSFET (test part, threshold below 0.41 V overdrive) it is not
+    res = bus_result(tmp_path, translator_bus(part="t-fet-translator-lvt"))
+    assert all("conditional" not in c.details for s in res.segments for c in s.checks)
+
+
+def test_margin_text_relative_and_absolute():
+    from pinlib.model.result import Check, check_max, margin_text
+
+    # derived: (300 − 270) / 300 = +10 %
+    assert margin_text(check_max("x", 270e-9, 300e-9, "s", "s", "m")) == "+10 %"
+    c = Check("y", "fail", -0.05, 0.0, "V", -0.05, "s", "m", margin_unit="V")
+    assert margin_text(c) == "−50 mV"  # derived: 0 V − 50 mV

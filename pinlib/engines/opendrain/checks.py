@@ -12,7 +12,7 @@ from __future__ import annotations
 import numpy as np
 
 from pinlib.engines.opendrain.arith import fall_bounds, low_levels
-from pinlib.engines.opendrain.bridges import bridge_checks
+from pinlib.engines.opendrain.bridges import bridge_checks, overdrive
 from pinlib.engines.opendrain.explain import segment_figures, segment_notes, window_advice
 from pinlib.engines.opendrain.inputs import (
     LineInputs,
@@ -26,6 +26,7 @@ from pinlib.engines.opendrain.rules import (
     _COMMON,
     _CORNERS,
     CLAMP_DROP,
+    GATE_OVERDRIVE,
     SIGNALS,
     abs_max_follows,
     controller_of,
@@ -214,6 +215,7 @@ def _low_level_checks(lc: _LineCtx, levels: list) -> list[Check]:
                             details={"receivers": {x[2].tap.label: x[0] for x in rows},
                                      "sink_model": _SINK_MODEL},
                             **ctx.kw(subject=f"{up} {r.tap.label}"))
+            _conditional_on_r_on(ctx, lc.far, chk)
             if failing:
                 chk.fix = (f"receivers {', '.join(failing)} read the low level as high: a larger "
                            "pull-up, a stronger sink, smaller series resistors, or a translator")
@@ -230,6 +232,19 @@ def _low_level_checks(lc: _LineCtx, levels: list) -> list[Check]:
                     f"{up} low-level noise margin {_f(nml[c], 'V')} (lowest VIL − low level, "
                     f"{_CORNERS[c]}) against {lim.v_nl_rel:g}·VDD", **kw))
     return checks_low
+
+
+def _conditional_on_r_on(ctx: Context, far: list, chk: Check) -> None:
+    """A low level computed through a pass transistor whose on-resistance is not assured
+    (gate overdrive below GATE_OVERDRIVE) holds only if it is: say so."""
+    for link, _, _ in far:
+        over = overdrive(link, ctx.seg_ins)
+        if over is None or over >= GATE_OVERDRIVE:
+            continue
+        text = (f"conditional: it takes {link.dev.ref}'s on-resistance {_f(link.r_on, 'Ω')}, "
+                f"not assured at {_f(over, 'V')} gate overdrive (bridge-gate-drive)")
+        chk.message += f"; {text}"
+        chk.details["conditional"] = text
 
 
 def _sink_checks(lc: _LineCtx, levels: list, offset_levels: list) -> list[Check]:
