@@ -753,3 +753,27 @@ def test_margin_text_relative_and_absolute():
     assert margin_text(check_max("x", 270e-9, 300e-9, "s", "s", "m")) == "+10 %"
     c = Check("y", "fail", -0.05, 0.0, "V", -0.05, "s", "m", margin_unit="V")
     assert margin_text(c) == "−50 mV"  # derived: 0 V − 50 mV
+
+
+# --------------------------------------------------------------------------- issue 13.10
+
+
+def test_noise_margin_figures_are_their_checks_values(tmp_path):
+    # reproducer: a receiver whose VIL is 0.2·VDD + 0.2 V (test part, invented): the low
+    # noise margin is smaller in volts at the rail's minimum but nearer its limit
+    # (0.1·VDD) at the maximum; the figure used to take the one, the check the other
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+               '{ ref = "U2", part = "t-target-vil-offset" }']
+    res = bus_result(tmp_path, one_bus(pullup="2.2 kΩ", vtol="10 %", devices=devices))
+    low = [c for c in res.checks if c.id == "noise-margin-low"]
+    for c in low:
+        # derived: 0.2·3.63 + 0.2 V − 3.63 V·133.3/(133.3 + 2200) Ω at the rail's maximum
+        assert "rail at its maximum" in c.message
+        assert c.value == pytest.approx(0.926 - 3.63 * 133.33 / 2333.33, abs=1e-3)
+        # published: UM10204 rev. 6, table 10, VnL 0.1·VDD
+        assert c.limit == pytest.approx(0.363, rel=1e-12)
+    # the figure is the check's value (derived: one computation, shown twice)
+    assert fig(res, "noise_margin_low") == pytest.approx(min(c.value for c in low), rel=1e-12)
+    high = [c for c in res.checks if c.id == "noise-margin-high"]
+    assert fig(res, "noise_margin_high") == pytest.approx(min(c.value for c in high),
+                                                           rel=1e-12)

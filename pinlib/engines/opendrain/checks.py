@@ -227,6 +227,9 @@ def _low_level_checks(lc: _LineCtx, levels: list) -> list[Check]:
             if lim.v_nl_rel is not None:
                 limit = lim.v_nl_rel * v
                 c = worst_index(min_margin(nml, limit))
+                # the figure is the check's value: the rail extreme where the margin to
+                # its limit (a share of that rail) is smallest
+                figs["noise_margin_low"] = float(nml[c])
                 checks_low.append(check_min(
                     "noise-margin-low", float(nml[c]), float(limit[c]), "V", lim.source_noise,
                     f"{up} low-level noise margin {_f(nml[c], 'V')} (lowest VIL − low level, "
@@ -325,6 +328,7 @@ def _high_level_checks(lc: _LineCtx) -> None:
         if lim.v_nh_rel is not None:
             limit = lim.v_nh_rel * v
             c = worst_index(min_margin(nmh, limit))
+            figs["noise_margin_high"] = float(nmh[c])  # the check's value, as above
             grp.add(check_min("noise-margin-high", float(nmh[c]), float(limit[c]), "V",
                               lim.source_noise,
                               f"{up} high-level noise margin {_f(nmh[c], 'V')} (high level − "
