@@ -13,7 +13,13 @@ import numpy as np
 
 from pinlib.engines.opendrain.arith import fall_bounds, low_levels
 from pinlib.engines.opendrain.bridges import bridge_checks, overdrive
-from pinlib.engines.opendrain.explain import segment_figures, segment_notes, window_advice
+from pinlib.engines.opendrain.explain import (
+    SINK_MODEL,
+    fall_basis,
+    segment_figures,
+    segment_notes,
+    window_advice,
+)
 from pinlib.engines.opendrain.inputs import (
     LineInputs,
     SegmentInputs,
@@ -49,12 +55,6 @@ from pinlib.model.result import (
 )
 from pinlib.physics import pullup as pu
 from pinlib.physics.rc import RISE_10_90
-
-#: The one sink model of a line's checks, stated in the v-ol and fall-time details.
-_SINK_MODEL = ("I ≥ min(V·IOL/VOL, IOL): the datasheet point (VOL at IOL) read as a "
-               "resistance VOL/IOL below VOL and as a constant current above it; the v-ol "
-               "check uses the resistive part (valid while the sink current stays within IOL, "
-               "which sink-current checks), the fall-time bound both")
 
 
 class Context:
@@ -213,7 +213,7 @@ def _low_level_checks(lc: _LineCtx, levels: list) -> list[Check]:
                             f"actual current, {_CORNERS[c]}, incl. I·Rs) against VIL "
                             f"{_f(r.v_il[c], 'V')} of {r.tap.label}",
                             details={"receivers": {x[2].tap.label: x[0] for x in rows},
-                                     "sink_model": _SINK_MODEL},
+                                     "sink_model": SINK_MODEL},
                             **ctx.kw(subject=f"{up} {r.tap.label}"))
             _conditional_on_r_on(ctx, lc.far, chk)
             if failing:
@@ -352,7 +352,7 @@ def _fall_checks(lc: _LineCtx) -> None:
         tf = float(t[c])
         figs["fall_time"] = tf
         via = "" if link is None else f" via {link.dev.ref}"
-        text, details = _fall_basis(lim, d, info, c, ln.cb)
+        text, details = fall_basis(lim, d, info, c, ln.cb)
         chk = check_max("fall-time", tf, lim.tf_max, "s", lim.source_edges,
                         f"{up} fall time at most {_f(tf, 's')} (driver {d.tap.label}{via}: "
                         f"{text}; pull-up at −{tol:.0%}, Cb {_f(ln.cb, 'F')}, {_CORNERS[c]})",
@@ -383,30 +383,6 @@ def _fall_checks(lc: _LineCtx) -> None:
                          f"{up}: " + ", ".join(missing))
     else:
         figs["fall_time"] = None
-
-
-def _fall_basis(lim, d, info: dict, c: int, cb: float) -> tuple[str, dict]:
-    """What bounds the reported fall time (at corner ``c``): the text and the details."""
-    t_sink = float(info["t_sink"][c])
-    t_of = None if info["t_of"] is None else float(np.broadcast_to(info["t_of"], (2,))[c])
-    sink = (f"sinking at least {_f(d.i_ol, 'A')} above {_f(float(d.v_ol[c]), 'V')} and as "
-            f"{_f(float(d.r_on[c]), 'Ω')} (VOL/IOL) below it")
-    details = {"bound": "constant sink current", "sink_bound": t_sink,
-               "sink_model": _SINK_MODEL}
-    if t_of is not None and np.isfinite(t_of) and t_of <= t_sink:
-        if info["kind"] == "part":
-            src = d.tap.source("t_of_max")
-            details.update(bound="t_of_max of its part", bound_source=src)
-            return (f"its part's output fall time t_of_max {_f(t_of, 's')} ({src}); the sink "
-                    f"alone bounds it at {_f(t_sink, 's')}"), details
-        spec = lim.output_fall()
-        details.update(bound="tof of a compliant output stage", bound_source=spec.source)
-        return (f"tof {_f(t_of, 's')} of a compliant {lim.label} output stage ({spec.source}), "
-                f"Cb inside its range; the sink alone bounds it at {_f(t_sink, 's')}"), details
-    if info["why"]:
-        details["tof_not_used"] = info["why"]
-        return sink, details
-    return sink, details
 
 
 def _segment_checks(ctx: Context, seg_in: SegmentInputs, grp: Group, per_line: dict) -> None:

@@ -1,5 +1,6 @@
-"""Explanations of the open-drain engine: advice for a pull-up window that fails, and
-the figures and notes of a segment, drawn from the same inputs the checks use."""
+"""Explanations of the open-drain engine: advice for a pull-up window that fails, what
+bounds a fall time (and the sink model the levels share), and the figures and notes of a
+segment, drawn from the same inputs the checks use."""
 
 from __future__ import annotations
 
@@ -139,6 +140,37 @@ def _no_fit_advice(lim: OpenDrainLimits, seg_in: SegmentInputs, ln: LineInputs) 
         tips.append(f"drivers sinking at least {_f(i_need, 'A')} at {_f(float(d.v_ol[1]), 'V')} "
                     f"(the weakest, {d.tap.label}, is rated {_f(d.i_ol, 'A')})")
     return tips
+
+
+#: The one sink model of a line's checks, stated in the v-ol and fall-time details.
+SINK_MODEL = ("I ≥ min(V·IOL/VOL, IOL): the datasheet point (VOL at IOL) read as a "
+               "resistance VOL/IOL below VOL and as a constant current above it; the v-ol "
+               "check uses the resistive part (valid while the sink current stays within IOL, "
+               "which sink-current checks), the fall-time bound both")
+
+
+def fall_basis(lim, d, info: dict, c: int, cb: float) -> tuple[str, dict]:
+    """What bounds the reported fall time (at corner ``c``): the text and the details."""
+    t_sink = float(info["t_sink"][c])
+    t_of = None if info["t_of"] is None else float(np.broadcast_to(info["t_of"], (2,))[c])
+    sink = (f"sinking at least {_f(d.i_ol, 'A')} above {_f(float(d.v_ol[c]), 'V')} and as "
+            f"{_f(float(d.r_on[c]), 'Ω')} (VOL/IOL) below it")
+    details = {"bound": "constant sink current", "sink_bound": t_sink,
+               "sink_model": SINK_MODEL}
+    if t_of is not None and np.isfinite(t_of) and t_of <= t_sink:
+        if info["kind"] == "part":
+            src = d.tap.source("t_of_max")
+            details.update(bound="t_of_max of its part", bound_source=src)
+            return (f"its part's output fall time t_of_max {_f(t_of, 's')} ({src}); the sink "
+                    f"alone bounds it at {_f(t_sink, 's')}"), details
+        spec = lim.output_fall()
+        details.update(bound="tof of a compliant output stage", bound_source=spec.source)
+        return (f"tof {_f(t_of, 's')} of a compliant {lim.label} output stage ({spec.source}), "
+                f"Cb inside its range; the sink alone bounds it at {_f(t_sink, 's')}"), details
+    if info["why"]:
+        details["tof_not_used"] = info["why"]
+        return sink, details
+    return sink, details
 
 
 _WORST = {"bus_capacitance": max, "pullup": min, "rp_min": max, "rp_max": min, "rise_time": max,
