@@ -66,3 +66,24 @@ def test_parts_show_lists_derived_values(part, capsys):
     out = capsys.readouterr().out
     assert "pins.out.r_out_rise" in out and "[derived]" in out
     assert "(VDD - v_oh) / i_oh" in out
+
+
+def test_derivation_text_reads_as_the_formula(tmp_path):
+    # reproducer: VOH written relative to the rail read "(VDD - VDD - 0.4 V) / 8 mA"
+    text = PART.replace('v_oh = "2.4 V"', 'v_oh = "VDD - 0.4 V"').replace(
+        'i_oh = "2 mA"', 'i_oh = "8 mA"')
+    (tmp_path / "t.toml").write_text(text, encoding="utf-8")
+    p = load_library([tmp_path], builtin=False, env=False, strict=True).get("t-lvttl-out")
+    d = derived_values(p)["pins.out.r_out_rise"]
+    assert "(VDD - (VDD - 0.4 V)) / 8 mA" in d.source
+    # derived from Ohm's law: (VDD − (VDD − 0.4 V)) / 8 mA = 50 Ω
+    assert d.value == pytest.approx(50.0, rel=1e-9)
+    # a plain level keeps its text: (VDD - 2.4 V), as before
+    assert "(VDD - 2.4 V) / 2 mA" in derived_values(part_of(tmp_path))["pins.out.r_out_rise"].source
+
+
+def part_of(tmp_path):
+    folder = tmp_path / "plain"
+    folder.mkdir()
+    (folder / "t.toml").write_text(PART, encoding="utf-8")
+    return load_library([folder], builtin=False, env=False, strict=True).get("t-lvttl-out")

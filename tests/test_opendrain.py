@@ -3,6 +3,7 @@ a published application-note example, ngspice and the eseries package."""
 
 from __future__ import annotations
 
+import json
 import math
 from pathlib import Path
 
@@ -575,3 +576,204 @@ def test_collect_exposes_the_inputs(tmp_path):
     sda = segs[0].lines["sda"]
     assert sda.cb == pytest.approx(50e-12)
     assert sda.cb_parts["extra"] == pytest.approx(30e-12)
+
+
+# --------------------------------------------------------------------------- issue 13.2
+
+
+def _fall(res, signal="SDA"):
+    return next(c for c in res.checks if c.id == "fall-time" and c.subject == signal)
+
+
+def test_fall_time_of_a_compliant_output_stage(tmp_path):
+    # reproducer: Standard-mode at 5 V, 320 pF (inside the 400 pF of the mode), 3 mA sinks,
+    # 2.2 kΩ at 5 %; the constant-current bound alone said 363 ns against 300 ns
+    devices = ['{ ref = "U1", part = "t-target", role = "controller" }',
+               '{ ref = "U2", part = "t-target" }']
+    res = bus_result(tmp_path, one_bus(mode="standard", supply="5 V", extra="300 pF",
+                                       pullup="2.2 kΩ", ptol="5 %", devices=devices))
+    chk = _fall(res)
+    # published: UM10204 rev. 6, table 9, tof max 250 ns (Standard-mode, Cb 10-400 pF)
+    assert chk.value == pytest.approx(250e-9, rel=1e-12)
+    assert chk.limit == pytest.approx(300e-9)  # published: UM10204 rev. 6, table 10, tf max
+    assert chk.status == "pass"
+    assert chk.details["bound"] == "tof of a compliant output stage"
+    assert "table 9" in chk.details["bound_source"]
+    # derived from the constant-sink bound (pinlib.physics.pullup.fall_time_bound): the
+    # 363 ns the issue reported is kept beside it
+    assert chk.details["sink_bound"] == pytest.approx(363e-9, abs=0.5e-9)
+    assert "compliant" in chk.message and "363 ns" in chk.message
+    # the v-ol check and the fall time name the same sink model
+    assert _fall(res).details["sink_model"] == res.check("v-ol").details["sink_model"]
+
+
+def test_fall_time_tof_is_not_claimed_where_it_does_not_hold(tmp_path):
+    # SMBus states no output fall time: the constant-sink bound stays, and says why
+    devices = ['{ ref = "U1", part = "t-target", role = "controller" }',
+               '{ ref = "U2", part = "t-target" }']
+    res = bus_result(tmp_path, one_bus(protocol="smbus", mode="100k", supply="5 V",
+                                       extra="300 pF", pullup="2.2 kΩ", devices=devices))
+    chk = _fall(res)
+    assert chk.details["bound"] == "constant sink current"
+    assert chk.value == pytest.approx(chk.details["sink_bound"], rel=1e-12)
+    assert "SMBus" in chk.details["tof_not_used"]
+    # a 3 mA sink on a Fast-mode Plus bus is no compliant Fm+ stage (published: UM10204
+    # rev. 6, table 9, Fm+ IOL 20 mA at 0.4 V): 120 ns is not claimed for it
+    res = bus_result(tmp_path, one_bus(mode="fast-plus", supply="5 V", extra="300 pF",
+                                       pullup="2.2 kΩ", devices=devices))
+    chk = _fall(res)
+    assert chk.details["bound"] == "constant sink current"
+    assert "weaker" in chk.details["tof_not_used"]
+    # beyond the 400 pF of the Standard-mode guarantee the table says nothing
+    res = bus_result(tmp_path, one_bus(mode="standard", supply="5 V", extra="420 pF",
+                                       pullup="2.2 kΩ", devices=devices))
+    assert "Cb outside" in _fall(res).details["tof_not_used"]
+
+
+def test_fall_time_from_the_parts_own_t_of_max(tmp_path):
+    devices = ['{ ref = "U1", part = "t-target-tof", role = "controller" }']
+    res = bus_result(tmp_path, one_bus(mode="standard", supply="5 V", extra="300 pF",
+                                       pullup="2.2 kΩ", devices=devices))
+    chk = _fall(res)
+    # from the test part: t_of_max 150 ns (tests/data/parts/t-target-tof.toml, invented)
+    assert chk.value == pytest.approx(150e-9, rel=1e-12)
+    assert chk.details["bound"] == "t_of_max of its part"
+    assert "t-target-tof pins.sda.t_of_max" in chk.details["bound_source"]
+    # a pull-up stronger than the sink's rating (derived: 5 V / 1 kΩ = 5 mA > 3 mA) is no
+    # load the part's guarantee covers: the sink's own bound stays
+    res = bus_result(tmp_path, one_bus(mode="standard", supply="5 V", extra="300 pF",
+                                       pullup="1 kΩ", devices=devices))
+    chk = _fall(res)
+    assert chk.details["bound"] == "constant sink current"
+    assert "more than its IOL" in chk.details["tof_not_used"]
+
+
+def test_fall_time_bound_is_the_same_in_batches(tmp_path):
+    from pinlib.studies import whatif
+
+    for part, mode, t_expected in (("t-target-tof", "standard", 150e-9),
+                                   ("t-target", "standard", 250e-9),
+                                   ("t-target", "fast-plus", None)):
+        devices = [f'{{ ref = "U1", part = "{part}", role = "controller" }}']
+        d = design(tmp_path, one_bus(mode=mode, supply="5 V", extra="300 pF",
+                                     pullup="2.2 kΩ", devices=devices))
+        engine = [c for c in check_design(d).bus("b").checks if c.id == "fall-time"]
+        falls = [c for c in whatif.monte_carlo(d, 8, seed=1).checks if c.id == "fall-time"]
+        assert len(falls) == len(engine) == 1
+        # 150 ns: the test part's t_of_max (invented); 250 ns published: UM10204 rev. 6,
+        # table 9, tof max; at Fm+ the 3 mA sink's own bound (derived, fall_time_bound)
+        if t_expected is not None:
+            assert engine[0].value == pytest.approx(t_expected, rel=1e-12)
+        # derived: the array path equals the one-bus path (no tolerance drawn)
+        assert all(float(x) == pytest.approx(engine[0].value, rel=1e-12)
+                   for x in falls[0].values)
+
+
+# --------------------------------------------------------------------------- issue 13.3
+
+TRANSLATOR_CABLE = Path(__file__).parent / "data" / "translator-cable.toml"
+
+
+def test_auto_across_a_translator_when_no_value_fits():
+    # reproducer: a 1.8 V sensor (2 mA at 0.2·VDD) at the end of a 1.5 m cable (243.5 pF,
+    # legal for Fast-mode Plus) behind a pass-transistor translator; auto used to pick
+    # 10 Ω on both segments with Rp(min) infinite
+    res = check_design(load_design(TRANSLATOR_CABLE)).bus("x")
+    high, low = res.segments
+    # derived from UM10204 rev. 6 eq. 1: 120 ns / (0.8473 · 243.5 pF) = 581.6 Ω
+    assert low.figures["rp_max"].value == pytest.approx(581.6, abs=0.1)
+    # derived from UM10204 rev. 6 eq. 2: (1.89 V − 0.378 V) / 2 mA = 756 Ω, the low side's
+    # own sinks alone: no value fits, as on a single segment
+    window = next(c for c in low.checks if c.id == "pullup-window" and c.subject == "SDA")
+    assert window.status == "fail"
+    assert "no resistor fits: Rp(max) 582 Ω" in window.fix and "Rp(min) 756 Ω" in window.fix
+    assert "compromise" in window.fix
+    # the compromise lies between the two (E24, derived from the auto rule), not at 10 Ω
+    assert 581.6 < low.figures["pullup_resistor"].value < 756.0
+    # the high side has its own window [1.02 kΩ, 9.44 kΩ] (derived: (3.465 − 0.4)/3 mA and
+    # 120 ns/(0.8473 · 15 pF)) and keeps its own choice
+    assert 1.02e3 < high.figures["pullup_resistor"].value < 9.44e3
+    assert any("the last value its window allowed" in n for n in high.notes)
+    # the SDA sink across the translator is named as the cause, not the translator current
+    hw = next(c for c in high.checks if c.id == "pullup-window" and c.subject == "SDA")
+    assert "segment low has no window of its own" in hw.fix
+    # no infinity reaches the reader as a number
+    text = json.dumps(res.to_json(), ensure_ascii=False)
+    assert "inf" not in text.replace("info", "") and "Infinity" not in text
+
+
+def test_auto_across_a_translator_batch_agrees(tmp_path):
+    from pinlib.studies import whatif
+
+    body = TRANSLATOR_CABLE.read_text(encoding="utf-8").replace('"5 %"', '"0 %"')
+    body = body.replace('"1 %"', '"0 %"').replace('library = ["parts"]',
+                                                  f'library = ["{PARTS.as_posix()}"]')
+    path = tmp_path / "d.toml"
+    path.write_text(body, encoding="utf-8")
+    d = load_design(path)
+    engine = check_design(d).bus("x")
+    mc = whatif.monte_carlo(d, 4, seed=1)
+    mine = [c for c in mc.checks if c.bus == "x" and c.id == "pullup-window"]
+    theirs = [c for s in engine.segments for c in s.checks if c.id == "pullup-window"]
+    assert len(mine) == len(theirs) == 4
+    for e, m in zip(theirs, mine, strict=True):
+        # derived: the array path chooses the same pull-ups and the same windows
+        assert all(float(x) == pytest.approx(e.value, rel=1e-12) for x in m.values)
+
+
+# --------------------------------------------------------------------------- issue 13.8
+
+
+def test_gate_drive_margin_is_in_volts_and_v_ol_says_it_is_conditional(tmp_path):
+    from pinlib.model.result import margin_text
+
+    # reproducer: 1.41 V low rail, gate threshold 1.2 V (test part, invented): 210 mV
+    res = bus_result(tmp_path, translator_bus(low="1.41 V"))
+    gate = res.segments[1].check("bridge-gate-drive")
+    # derived: 1.41 V − 1.2 V; the rule of thumb of 1 V is common practice, no source
+    assert gate.value == pytest.approx(0.21, abs=1e-12)
+    assert gate.status == "warn"
+    assert gate.margin_unit == "V" and margin_text(gate) == "+210 mV"
+    assert gate.to_json()["margin_unit"] == "V"
+    assert gate.details["warn_below"] == pytest.approx(1.0)  # common practice, no source
+    # every low level taken through that on-resistance says it holds only if it is assured
+    for seg in res.segments:
+        for c in seg.checks:
+            if c.id == "v-ol":
+                assert "conditional" in c.details and "not assured" in c.message
+    # with a logic-level MOSFET (test part, threshold below 0.41 V overdrive) it is not
+    res = bus_result(tmp_path, translator_bus(part="t-fet-translator-lvt"))
+    assert all("conditional" not in c.details for s in res.segments for c in s.checks)
+
+
+def test_margin_text_relative_and_absolute():
+    from pinlib.model.result import Check, check_max, margin_text
+
+    # derived: (300 − 270) / 300 = +10 %
+    assert margin_text(check_max("x", 270e-9, 300e-9, "s", "s", "m")) == "+10 %"
+    c = Check("y", "fail", -0.05, 0.0, "V", -0.05, "s", "m", margin_unit="V")
+    assert margin_text(c) == "−50 mV"  # derived: 0 V − 50 mV
+
+
+# --------------------------------------------------------------------------- issue 13.10
+
+
+def test_noise_margin_figures_are_their_checks_values(tmp_path):
+    # reproducer: a receiver whose VIL is 0.2·VDD + 0.2 V (test part, invented): the low
+    # noise margin is smaller in volts at the rail's minimum but nearer its limit
+    # (0.1·VDD) at the maximum; the figure used to take the one, the check the other
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+               '{ ref = "U2", part = "t-target-vil-offset" }']
+    res = bus_result(tmp_path, one_bus(pullup="2.2 kΩ", vtol="10 %", devices=devices))
+    low = [c for c in res.checks if c.id == "noise-margin-low"]
+    for c in low:
+        # derived: 0.2·3.63 + 0.2 V − 3.63 V·133.3/(133.3 + 2200) Ω at the rail's maximum
+        assert "rail at its maximum" in c.message
+        assert c.value == pytest.approx(0.926 - 3.63 * 133.33 / 2333.33, abs=1e-3)
+        # published: UM10204 rev. 6, table 10, VnL 0.1·VDD
+        assert c.limit == pytest.approx(0.363, rel=1e-12)
+    # the figure is the check's value (derived: one computation, shown twice)
+    assert fig(res, "noise_margin_low") == pytest.approx(min(c.value for c in low), rel=1e-12)
+    high = [c for c in res.checks if c.id == "noise-margin-high"]
+    assert fig(res, "noise_margin_high") == pytest.approx(min(c.value for c in high),
+                                                           rel=1e-12)

@@ -557,3 +557,15 @@ def test_package_exports():
     )  # fmt: skip
     for name in standards.__all__:
         assert callable(getattr(standards, name))
+
+
+@pytest.mark.parametrize("mode, t_ns, cb_max_pf", [("standard", 250, 400), ("fast", 250, 400),
+                                                    ("fast-plus", 120, 550)])
+def test_i2c_output_fall_guarantee(mode, t_ns, cb_max_pf):
+    # published: UM10204 rev. 6, table 9, tof max (Sm, Fm: 250 ns for Cb 10-400 pF;
+    # Fm+: 120 ns); from memory: the Fm+ guarantee taken over the mode's 550 pF (table 10)
+    f = i2c.output_fall(mode)
+    assert f.t_max == pytest.approx(t_ns * NS, rel=1e-12)
+    assert f.cb_min == pytest.approx(10 * PF, rel=1e-12)
+    assert f.cb_max == pytest.approx(cb_max_pf * PF, rel=1e-12)
+    assert f.source.startswith("I2C-bus specification UM10204 rev. 6, table 9")

@@ -121,6 +121,20 @@ class OpenDrainLimits:
         t = self._i2c.tf_min_at(vdd)
         return float(t) if np.ndim(t) == 0 else np.asarray(t, dtype=float)
 
+    def output_fall(self) -> i2c_std.OutputFall | None:
+        """The output fall time a compliant I2C output stage of this mode guarantees
+        (tof, UM10204 table 9) with its Cb range; None for SMBus, which states none."""
+        return None if self._i2c is None else i2c_std.output_fall(self._i2c)
+
+    def sink_point(self, vdd):
+        """(VOL, IOL) an output of this mode must meet at a supply (arrays for arrays;
+        NaN where the document gives none). [V], [A]"""
+        if self._smbus is not None:
+            c = self._smbus
+            return np.full(np.shape(vdd), c.v_ol), np.full(np.shape(vdd), c.i_ol)
+        v_ol, i_ol, _ = i2c_std.sink_spec(self._i2c, vdd)
+        return v_ol, i_ol
+
     # ------------------------------------------------------------------ defaults for pins
 
     def default_levels(self) -> tuple[Sourced, Sourced]:

@@ -24,6 +24,14 @@ from pinlib.library.values import Sourced
 __all__ = ["derived_values"]
 
 
+def _term(text: str) -> str:
+    """A level's text as an operand of a formula: in parentheses where it is itself a sum
+    or difference (``VDD - 0.4 V``), so ``VDD - (VDD - 0.4 V)`` reads as it computes."""
+    t = text.strip()
+    body = t[1:] if t[:1] in "+-−" else t
+    return f"({t})" if any(op in body for op in ("+", "-", "−")) else t
+
+
 def _pin_derived(prefix: str, pin: Pin, vdd: float | None) -> dict[str, Sourced]:
     out: dict[str, Sourced] = {}
     if vdd is None:
@@ -35,14 +43,15 @@ def _pin_derived(prefix: str, pin: Pin, vdd: float | None) -> dict[str, Sourced]
             if r > 0:
                 out[f"{prefix}.r_out_rise"] = Sourced(
                     r, "Ω", format_si(r, "Ω"), "derived",
-                    f"(VDD - v_oh) / i_oh = (VDD - {pin.v_oh.text}) / {pin.i_oh.text} {at}")
+                    f"(VDD - v_oh) / i_oh = (VDD - {_term(pin.v_oh.text)}) / "
+                    f"{_term(pin.i_oh.text)} {at}")
     if pin.drive in ("push-pull", "open-drain") and pin.r_out is None:
         if pin.v_ol is not None and pin.i_ol is not None and pin.i_ol.value > 0:
             r = float(pin.v_ol.at(vdd)) / pin.i_ol.value
             name = "r_out_fall" if pin.drive == "push-pull" else "r_sink"
             out[f"{prefix}.{name}"] = Sourced(
                 r, "Ω", format_si(r, "Ω"), "derived",
-                f"v_ol / i_ol = {pin.v_ol.text} / {pin.i_ol.text} {at}")
+                f"v_ol / i_ol = {_term(pin.v_ol.text)} / {_term(pin.i_ol.text)} {at}")
     return out
 
 

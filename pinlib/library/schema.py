@@ -26,6 +26,8 @@ t_valid    clock edge to output valid, max (SPI)                    s
 t_setup    input setup time before the sampling edge, min           s
 t_hold     input hold time after the sampling edge, min             s
 t_pd       propagation delay through a bridging part, max           s
+t_of_min   output fall time 0.7 to 0.3 VDD at the pin, min          s
+t_of_max   output fall time 0.7 to 0.3 VDD at the pin, max          s
 ========== ======================================================== =====
 """
 

@@ -23,6 +23,7 @@ __all__ = [
     "check_max",
     "check_min",
     "check_true",
+    "margin_text",
     "min_margin",
     "max_margin",
     "status_codes",
@@ -82,6 +83,9 @@ class Check:
     subject: str | None = None  # the signal, device or pin the check is about
     fix: str | None = None      # what would make a failing check pass
     details: dict = field(default_factory=dict)
+    #: the unit of an absolute margin (value minus limit, or limit minus value) where a
+    #: margin relative to the limit means nothing (a limit of 0 V); None: relative
+    margin_unit: str | None = None
 
     def to_json(self) -> dict:
         out = {
@@ -100,7 +104,25 @@ class Check:
             out["fix"] = self.fix
         if self.details:
             out["details"] = {k: _json_any(v) for k, v in self.details.items()}
+        if self.margin_unit is not None:
+            out["margin_unit"] = self.margin_unit
         return out
+
+
+def margin_text(c: Check) -> str:
+    """A check's margin for people: ``+12 %`` relative to its limit, or in the check's unit
+    (``+210 mV``) where the margin is absolute; ``∞`` / ``−∞`` where it is not finite."""
+    from pinlib.core.quantity import format_si
+
+    if c.margin is None:
+        return ""
+    m = float(c.margin)
+    if not math.isfinite(m):
+        return "∞" if m > 0 else ("−∞" if m < 0 else "—")
+    if c.margin_unit is not None:
+        text = format_si(abs(m), c.margin_unit)
+        return ("−" if m < 0 else "+") + text
+    return f"{m * 100:+.0f} %"
 
 
 def json_number(v):

@@ -9,7 +9,7 @@ import math
 import textwrap
 
 from pinlib.core.quantity import format_si
-from pinlib.model.result import CAUTION, BusResult, Check, DesignResult, Group
+from pinlib.model.result import CAUTION, BusResult, Check, DesignResult, Group, margin_text
 
 __all__ = ["format_text", "format_value"]
 
@@ -37,12 +37,7 @@ def format_value(value, unit: str) -> str:
 
 
 def _margin(c: Check) -> str:
-    if c.margin is None:
-        return ""
-    m = float(c.margin)
-    if not math.isfinite(m):
-        return "∞"
-    return f"{m * 100:+.0f} %"
+    return margin_text(c)
 
 
 def _table(rows: list[list[str]], indent: str) -> list[str]:

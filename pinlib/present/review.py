@@ -42,7 +42,6 @@ from __future__ import annotations
 
 import base64
 import html
-import math
 import re
 from dataclasses import dataclass, field
 
@@ -51,7 +50,7 @@ from pinlib.core import messages as M
 from pinlib.core.errors import PinlibError
 from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS, PUSH_PULL_PROTOCOLS
 from pinlib.core.quantity import format_si
-from pinlib.model.result import CAUTION, BusResult, Check, DesignResult, Group
+from pinlib.model.result import CAUTION, BusResult, Check, DesignResult, Group, margin_text
 from pinlib.present.report import format_value
 
 __all__ = [
@@ -588,12 +587,7 @@ def render_markdown(design, result: DesignResult, *, changes=None, mc=None,
 
 
 def _margin(c: Check) -> str:
-    if c.margin is None:
-        return ""
-    m = float(c.margin)
-    if not math.isfinite(m):
-        return "∞" if m > 0 else "−∞"
-    return f"{m * 100:+.0f} %"
+    return margin_text(c)
 
 
 def _value(value, unit: str) -> str:

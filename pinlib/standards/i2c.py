@@ -33,6 +33,8 @@ __all__ = [
     "I2C_MODE_NAMES",
     "i2c_mode",
     "sink_spec",
+    "OutputFall",
+    "output_fall",
 ]
 
 SOURCE_IO = "I2C-bus specification UM10204 rev. 6, table 9"
@@ -534,3 +536,53 @@ def sink_spec(mode, vdd):
     i_ol = np.where(low, i_low, m.i_ol)
     source = f"{m.source_io}, VOL1 (VDD > 2 V) / VOL2 (VDD <= 2 V)"
     return _out(v_ol), _out(i_ol), source
+
+
+@dataclass(frozen=True)
+class OutputFall:
+    """What Table 9 guarantees of a compliant output stage's fall: at most ``t_max``
+    from VIH,min to VIL,max (0.7·VDD to 0.3·VDD, the bus's own measuring levels) while
+    the line it drives carries ``cb_min`` to ``cb_max``.
+
+    Attributes
+    ----------
+    t_max : float
+        tof max. [s]
+    cb_min, cb_max : float
+        The bus capacitance range of the guarantee. [F]
+    source : str
+        Document, revision, table and note of the values.
+    """
+
+    t_max: float
+    cb_min: float
+    cb_max: float
+    source: str
+
+
+# UM10204 rev. 6, table 9, row tof: Standard- and Fast-mode 250 ns for a bus line of
+# 10 pF to 400 pF (its condition column); Fast-mode Plus 120 ns, the same figure as the
+# bus line's tf (table 9 note: in Fast-mode Plus the fall time is specified the same for
+# the output stage and the bus), taken over that mode's whole Cb range (550 pF, table 10).
+_TOF_CB = {
+    "standard": (10e-12, 400e-12, f"{SOURCE_IO}, tof max, 10 pF to 400 pF"),
+    "fast": (10e-12, 400e-12, f"{SOURCE_IO}, tof max, 10 pF to 400 pF"),
+    "fast-plus": (10e-12, 550e-12,
+                  f"{SOURCE_IO}, tof max (Fast-mode Plus: the same as the bus's tf); "
+                  "from memory: Cb 10 pF to 550 pF, the mode's Cb max of table 10"),
+}
+
+
+def output_fall(mode) -> OutputFall:
+    """The output fall time a compliant output stage of ``mode`` guarantees, with the
+    bus capacitance range of the guarantee and its source.
+
+    Examples
+    --------
+    >>> f = output_fall("standard")
+    >>> round(f.t_max * 1e9), round(f.cb_max * 1e12)
+    (250, 400)
+    """
+    m = mode if isinstance(mode, I2cMode) else i2c_mode(mode)
+    lo, hi, source = _TOF_CB[m.name]
+    return OutputFall(m.t_of_max, lo, hi, source)

@@ -148,6 +148,20 @@ class Ranking:
     excluded: int
     library_size: int
     notes: list[str] = field(default_factory=list)
+    #: Placeable parts not considered at all, by why: ``cable`` (a cable is no part of a
+    #: position) and ``category`` (outside the categories asked for). [1]
+    set_aside: dict = field(default_factory=dict)
+
+    def count_text(self) -> str:
+        """How the library's placeable parts divide: those that can serve the position,
+        those that cannot, and those not considered; the numbers add up to the whole."""
+        rest = [f"{self.excluded} cannot: pin functions or drives"]
+        if self.set_aside.get("cable"):
+            rest.append(f"{self.set_aside['cable']} are cables, which stand at no position")
+        if self.set_aside.get("category"):
+            rest.append(f"{self.set_aside['category']} are of other categories")
+        return (f"{len(self.candidates)} of {self.library_size} placeable parts can serve it "
+                f"({'; '.join(rest)})")
 
     def candidate(self, part_id: str) -> Candidate:
         for c in self.candidates:
@@ -160,7 +174,7 @@ class Ranking:
         return {"format": FORMAT, "design": self.design, "ref": self.ref,
                 "current": self.current, "buses": self.buses,
                 "library_parts": self.library_size, "excluded": self.excluded,
-                "count": len(self.candidates),
+                "set_aside": dict(self.set_aside), "count": len(self.candidates),
                 "candidates": [c.to_json() for c in shown], "notes": list(self.notes)}
 
     def format_text(self, top: int | None = 20) -> str:
@@ -168,8 +182,7 @@ class Ranking:
                           + (f", segment {b['segment']}" if b.get("segment") else "")
                           + f", {b['role']})" for b in self.buses)
         lines = [f"position {self.ref}, now {self.current}: {where}",
-                 f"{len(self.candidates)} of {self.library_size} placeable parts can serve it "
-                 f"({self.excluded} cannot: pin functions or drives)"]
+                 self.count_text()]
         shown = self.candidates if top is None else self.candidates[:top]
         if shown:
             fig_cols = []
@@ -255,6 +268,19 @@ def eligible(design: Design, ref: str, categories=None) -> tuple[list[Part], int
             continue
         out.append(part)
     return out, excluded
+
+
+def set_aside(design: Design, categories=None) -> dict:
+    """The placeable parts :func:`eligible` does not consider, counted by why: ``cable``
+    and ``category`` (outside ``categories``). [1]"""
+    cats = set(categories or ())
+    out = {"cable": 0, "category": 0}
+    for part in design.library.placeable().values():
+        if part.category == "cable":
+            out["cable"] += 1
+        elif cats and part.category not in cats:
+            out["category"] += 1
+    return out
 
 
 def _bus_rows(places) -> list[dict]:
@@ -353,7 +379,7 @@ def rank_candidates_slow(design: Design, ref: str, *, categories=None,
             bar.update(1)
     out.sort(key=Candidate.sort_key)
     return Ranking(design.title, ref, current, _bus_rows(places), out, excluded,
-                   len(design.library.placeable()))
+                   len(design.library.placeable()), set_aside=set_aside(design, categories))
 
 
 def _batch_summaries(bus: Bus, dev: Device, design: Design, ref: str, parts: list[Part],
@@ -496,7 +522,8 @@ def rank_candidates(design: Design, ref: str, *, categories=None, progress=None)
                              p.id == current, methods[p.id], margins=tuple(sorted(margins))))
     out.sort(key=Candidate.sort_key)
     return Ranking(design.title, ref, current, _bus_rows(places), out, excluded,
-                   len(design.library.placeable()), notes)
+                   len(design.library.placeable()), notes,
+                   set_aside=set_aside(design, categories))
 
 
 def _where(w: dict) -> dict:

@@ -61,16 +61,87 @@ def low_levels(v, rp_lo, drivers, far, segs, signal: str) -> tuple[list, list]:
     return levels, offset_levels
 
 
+#: What bounds a driver's fall time (the ``kind`` of :func:`fall_bounds`).
+BY_PART = "part"       # its part's t_of_max
+BY_SPEC = "spec"       # tof of a compliant output stage (UM10204 table 9)
+BY_SINK = "sink"       # the guaranteed sink current alone
+
+
+def _stated_tof(d):
+    """A driver's own t_of_max (a Sourced on one bus, a float or column in a batch)."""
+    t = getattr(d.tap.pin, "t_of_max", None)
+    return None if t is None else getattr(t, "value", t)
+
+
+def output_fall(lim, d, cb, v, link, rp_lo):
+    """The output fall time that bounds driver ``d`` by itself, where one does.
+
+    A driver's part may state ``t_of_max``; else on an I2C bus a driver whose sink meets
+    the mode's (VOL, IOL) point claims a compliant output stage of that mode, whose fall
+    from 0.7·VDD to 0.3·VDD (the bus's measuring levels) UM10204 table 9 bounds by tof
+    for a bus capacitance inside the table's range.  Either holds at the pin (not through
+    a series resistor or a translator's on-resistance) and under a legal load: the
+    pull-up (at −tolerance, ``rp_lo``) draws at most the driver's IOL at its VOL.
+
+    Returns
+    -------
+    t_of : numpy.ndarray or None
+        The bound, ``inf`` where it does not hold. [s]
+    kind : str
+        :data:`BY_PART`, :data:`BY_SPEC` or :data:`BY_SINK` (no such bound).
+    why : str
+        Why it does not hold, where it does not (one bus: the first reason). [1]
+    """
+    if link is not None:
+        return None, BY_SINK, f"it pulls the line through {link.dev.ref}'s on-resistance"
+    stated = _stated_tof(d)
+    spec = lim.output_fall()
+    if stated is None and spec is None:
+        return None, BY_SINK, "SMBus states no output fall time"
+    bare = np.asarray(d.r_series) == 0
+    legal = (v - d.v_ol) / rp_lo <= d.i_ol
+    checks = [(bare, "its series resistor: the output fall time holds at the pin"),
+              (legal, "the pull-up draws more than its IOL at VOL")]
+    if stated is not None:
+        t, kind = np.asarray(stated, dtype=float), BY_PART
+    else:
+        vol, iol = lim.sink_point(v)
+        checks.append(((np.asarray(d.i_ol) >= iol) & (np.asarray(d.v_ol) <= vol),
+                       "its sink point is weaker than the mode's (VOL, IOL)"))
+        checks.append(((np.asarray(cb) >= spec.cb_min) & (np.asarray(cb) <= spec.cb_max),
+                       f"Cb outside the {spec.cb_min * 1e12:g}–{spec.cb_max * 1e12:g} pF of "
+                       "the guarantee"))
+        t, kind = np.asarray(spec.t_max, dtype=float), BY_SPEC
+    ok = np.asarray(True)
+    why = ""
+    for cond, reason in checks:
+        ok = ok & cond
+        if not why and not np.all(cond):
+            why = reason
+    return np.where(ok, t, np.inf), kind, why
+
+
 def fall_bounds(lim, rp_lo, cb, v, drivers, far, segs, signal: str) -> list:
-    """Upper bound of the fall time from each driver's guaranteed sink (and from each
-    across a translator, through its on-resistance): ``(t, driver, link or None)``. [s]"""
+    """Upper bound of the fall time of each driver (and of each across a translator,
+    through its on-resistance): the smaller of the bound from its guaranteed sink
+    current and the output fall time it guarantees (:func:`output_fall`).
+
+    Returns
+    -------
+    list
+        ``(t, driver, link or None, info)`` with ``info`` a dict: ``t_sink`` the
+        sink-current bound, ``t_of`` the output fall bound (``inf`` where it does not
+        hold) or None, ``kind`` and ``why`` of :func:`output_fall`. [s]
+    """
     v_lo, v_hi = lim.measuring_levels(v)
+    pairs = [(d, None, d.r_series) for d in drivers]
+    pairs += [(d, link, d.r_series + link.r_on)
+              for d, link, _, _ in far_drivers(far, segs, signal)]
     out = []
-    for d in drivers:
-        out.append((np.asarray(pu.fall_time_bound(rp_lo, cb, v, d.v_ol, d.i_ol, v_hi, v_lo,
-                                                  d.r_series), dtype=float), d, None))
-    for d, link, _, _ in far_drivers(far, segs, signal):
-        out.append((np.asarray(pu.fall_time_bound(rp_lo, cb, v, d.v_ol, d.i_ol, v_hi, v_lo,
-                                                  d.r_series + link.r_on), dtype=float),
-                    d, link))
+    for d, link, r_s in pairs:
+        t_sink = np.asarray(pu.fall_time_bound(rp_lo, cb, v, d.v_ol, d.i_ol, v_hi, v_lo, r_s),
+                            dtype=float)
+        t_of, kind, why = output_fall(lim, d, cb, v, link, rp_lo)
+        t = t_sink if t_of is None else np.minimum(t_sink, t_of)
+        out.append((t, d, link, {"t_sink": t_sink, "t_of": t_of, "kind": kind, "why": why}))
     return out

@@ -267,7 +267,7 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             limit = lim.v_nh_rel * v
             out.pick("noise-margin-high", up, [(min_margin(nmh, limit), nmh, limit)], warn, "V")
     # -- fall time
-    falls = [_worst_max(t) for t, _, _ in fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far,
+    falls = [_worst_max(t) for t, _, _, _ in fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far,
                                                        ctx.segs, ln.signal)]
     f["fall_time"] = None
     if falls:

@@ -30,6 +30,7 @@ from pinlib.engines.opendrain.rules import (
     pin_rules,
     rp_max_of,
     rp_min_of,
+    window_open,
 )
 from pinlib.library.schema import Part
 from pinlib.model.design import Bus, Device, Segment
@@ -89,6 +90,7 @@ class PinData:
     pullup_internal: Any | None  # [Ω] counted only when the design enables it
     off_tolerant: Any
     t_of_min: Any | None   # [s]
+    t_of_max: Any | None   # [s]
 
 
 @dataclass
@@ -130,6 +132,7 @@ def _pin_data(pin, name: str, part: Part, dev: Device, lim: OpenDrainLimits,
         pullup_internal=internal,
         off_tolerant=bool(pin.off_tolerant),
         t_of_min=float(pin.t_of_min.value) if pin.t_of_min is not None else None,
+        t_of_max=float(pin.t_of_max.value) if pin.t_of_max is not None else None,
     )
 
 
@@ -194,7 +197,7 @@ def structure(part: Part, dev: Device, bus: Bus, lim: OpenDrainLimits | None = N
                     pin.v_il is not None or pin.v_ih is not None or not quiet,
                     pin.abs_max is None, pin.pullup is None,
                     not (dev.internal_pullups and pin.pullup_internal is not None),
-                    pin.t_of_min is None))
+                    pin.t_of_min is None, pin.t_of_max is None))
     t = part.timing
     key.append((t.f_max is None, t.t_low is None, t.t_high is None,
                 part.supply_for(dev.side) is None))
@@ -489,6 +492,14 @@ def _rp_min_coupled(s: _Seg, signal: str, segs: list[_Seg], links: list[_Link]):
     return best
 
 
+def _own_window(s: _Seg):
+    """Per variant: every line of the segment has a window (the engine's rule). [1]"""
+    ok = np.asarray(True)
+    for ln in s.lines.values():
+        ok = ok & window_open(ln.rp_min, ln.rp_max, s.tol)
+    return ok
+
+
 def _couple(segs: list[_Seg], links: dict[int, list[_Link]], scen: Scenario) -> None:
     coupled = [s for s in segs if any(ln.kind == "mosfet" for ln in links[s.index])]
     if not scen.chooses:
@@ -497,15 +508,27 @@ def _couple(segs: list[_Seg], links: dict[int, list[_Link]], scen: Scenario) -> 
                 ln.rp_min = _rp_min_coupled(s, sig, segs, links[s.index])
         return
     # the engine re-chooses each segment against the others' present values, at most 8
-    # rounds; a variant that settled stays settled, so the rounds run until none moves
+    # rounds; a variant that settled stays settled, so the rounds run until none moves.
+    # A segment without a window of its own keeps its compromise, and one whose sinks the
+    # pull-ups across the translator already fill keeps the value it has (the engine's
+    # rule, inputs._couple), per variant
+    held = {s.index: ~np.asarray(_own_window(s)) for s in coupled}
     for _ in range(8):
         changed = False
         for s in coupled:
             for sig, ln in s.lines.items():
                 ln.rp_min = _rp_min_coupled(s, sig, segs, links[s.index])
-            before = s.lines["sda"].pullup
+            keep = held[s.index]
+            for ln in s.lines.values():
+                keep = keep | np.isinf(ln.rp_min)
+            before = {sig: ln.pullup for sig, ln in s.lines.items()}
             _choose(s)
-            changed |= bool(np.any(s.lines["sda"].pullup != before))
+            for sig, ln in s.lines.items():
+                ln.pullup = np.where(keep, before[sig], ln.pullup)
+            changed |= bool(np.any(s.lines["sda"].pullup != before["sda"]))
         if not changed:
             break
+    for s in coupled:  # Rp(min) against the values finally chosen
+        for sig, ln in s.lines.items():
+            ln.rp_min = _rp_min_coupled(s, sig, segs, links[s.index])
 

@@ -26,11 +26,23 @@ from pinlib.model.result import STATUSES, Check, Group, check_max, check_true, m
 def gate_drive(over):
     """Margin and status code of a pass transistor's gate overdrive (low rail minus its
     threshold): it does not conduct at all without overdrive (limit 0 V, a fail); below
-    :data:`GATE_OVERDRIVE` its on-resistance is not assured (a warning).  The margin is
-    relative to that overdrive. Scalars or arrays. [1]"""
+    :data:`GATE_OVERDRIVE` its on-resistance is not assured (a warning).  A margin
+    relative to a limit of 0 V means nothing: the margin is the overdrive itself, in
+    volts (absolute). Scalars or arrays. [V]"""
     over = np.asarray(over, dtype=float)
     status = np.where(over <= 0, 2, np.where(over < GATE_OVERDRIVE, 1, 0)).astype(np.int8)
-    return over / GATE_OVERDRIVE, status
+    return over - 0.0, status
+
+
+def overdrive(link, seg_ins) -> float | None:
+    """A pass transistor's gate overdrive: the lower of the two rails at its minimum
+    minus its threshold (None where the part states no threshold). [V]"""
+    br = link.dev.part.bridge
+    if br is None or br.v_gs_th is None:
+        return None
+    rails = [float(s.vdd[0]) for s in seg_ins
+             if any(d.ref == link.dev.ref for d in s.segment.devices)]
+    return min(rails) - float(br.v_gs_th.value)
 
 
 def _gate_drive_check(seg_in: SegmentInputs, link, grp: Group) -> None:
@@ -55,9 +67,10 @@ def _gate_drive_check(seg_in: SegmentInputs, link, grp: Group) -> None:
         msg += (f"; below {_f(GATE_OVERDRIVE, 'V')} its on-resistance "
                 f"{_f(link.r_on, 'Ω')} is not assured: {fix}")
     grp.add(Check("bridge-gate-drive", status, over, 0.0, "V", margin,
-                  f"{_COMMON}: gate overdrive of at least {GATE_OVERDRIVE:g} V; "
-                  f"threshold from {d.part_id} bridge.v_gs_th", msg, subject=d.ref,
-                  fix=fix))
+                  f"{_COMMON}: gate overdrive of at least {GATE_OVERDRIVE:g} V (a warning "
+                  f"below it; none at all, 0 V, fails); threshold from {d.part_id} "
+                  "bridge.v_gs_th", msg, subject=d.ref, fix=fix,
+                  details={"warn_below": GATE_OVERDRIVE}, margin_unit="V"))
 
 
 def _offset_check(ctx, seg_in: SegmentInputs, d, grp: Group) -> None:

@@ -12,8 +12,14 @@ from __future__ import annotations
 import numpy as np
 
 from pinlib.engines.opendrain.arith import fall_bounds, low_levels
-from pinlib.engines.opendrain.bridges import bridge_checks
-from pinlib.engines.opendrain.explain import segment_figures, segment_notes, window_advice
+from pinlib.engines.opendrain.bridges import bridge_checks, overdrive
+from pinlib.engines.opendrain.explain import (
+    SINK_MODEL,
+    fall_basis,
+    segment_figures,
+    segment_notes,
+    window_advice,
+)
 from pinlib.engines.opendrain.inputs import (
     LineInputs,
     SegmentInputs,
@@ -26,6 +32,7 @@ from pinlib.engines.opendrain.rules import (
     _COMMON,
     _CORNERS,
     CLAMP_DROP,
+    GATE_OVERDRIVE,
     SIGNALS,
     abs_max_follows,
     controller_of,
@@ -88,7 +95,9 @@ def _window_check(ctx: Context, seg_in: SegmentInputs, ln: LineInputs) -> Check:
                "definition": lim.rise_definition, "auto": seg_in.auto}
     shown = (f"{_f(r_eff, 'Ω')} ({' ∥ '.join(_f(c['value'], 'Ω') for c in contributors)})"
              if ln.part_pullups else _f(r_eff, 'Ω'))
-    window = f"[{_f(ln.rp_min, 'Ω')}, {_f(ln.rp_max, 'Ω')}]"
+    lo_text = _f(ln.rp_min, 'Ω') if np.isfinite(ln.rp_min) else "none (no value: see below)"
+    hi_text = _f(ln.rp_max, 'Ω') if np.isfinite(ln.rp_max) else "no upper limit"
+    window = f"[{lo_text}, {hi_text}]"
     if m_lo <= m_hi:
         chk = check_min("pullup-window", r_eff * (1 - tol), ln.rp_min, "Ω", src,
                         f"{up} pull-up {shown} at −{tol:.0%}: {_f(r_eff * (1 - tol), 'Ω')} "
@@ -203,8 +212,10 @@ def _low_level_checks(lc: _LineCtx, levels: list) -> list[Check]:
                             f"{up} low level {_f(vol_bus[c], 'V')} (driver {worst_drv[c]} at the "
                             f"actual current, {_CORNERS[c]}, incl. I·Rs) against VIL "
                             f"{_f(r.v_il[c], 'V')} of {r.tap.label}",
-                            details={"receivers": {x[2].tap.label: x[0] for x in rows}},
+                            details={"receivers": {x[2].tap.label: x[0] for x in rows},
+                                     "sink_model": SINK_MODEL},
                             **ctx.kw(subject=f"{up} {r.tap.label}"))
+            _conditional_on_r_on(ctx, lc.far, chk)
             if failing:
                 chk.fix = (f"receivers {', '.join(failing)} read the low level as high: a larger "
                            "pull-up, a stronger sink, smaller series resistors, or a translator")
@@ -216,11 +227,27 @@ def _low_level_checks(lc: _LineCtx, levels: list) -> list[Check]:
             if lim.v_nl_rel is not None:
                 limit = lim.v_nl_rel * v
                 c = worst_index(min_margin(nml, limit))
+                # the figure is the check's value: the rail extreme where the margin to
+                # its limit (a share of that rail) is smallest
+                figs["noise_margin_low"] = float(nml[c])
                 checks_low.append(check_min(
                     "noise-margin-low", float(nml[c]), float(limit[c]), "V", lim.source_noise,
                     f"{up} low-level noise margin {_f(nml[c], 'V')} (lowest VIL − low level, "
                     f"{_CORNERS[c]}) against {lim.v_nl_rel:g}·VDD", **kw))
     return checks_low
+
+
+def _conditional_on_r_on(ctx: Context, far: list, chk: Check) -> None:
+    """A low level computed through a pass transistor whose on-resistance is not assured
+    (gate overdrive below GATE_OVERDRIVE) holds only if it is: say so."""
+    for link, _, _ in far:
+        over = overdrive(link, ctx.seg_ins)
+        if over is None or over >= GATE_OVERDRIVE:
+            continue
+        text = (f"conditional: it takes {link.dev.ref}'s on-resistance {_f(link.r_on, 'Ω')}, "
+                f"not assured at {_f(over, 'V')} gate overdrive (bridge-gate-drive)")
+        chk.message += f"; {text}"
+        chk.details["conditional"] = text
 
 
 def _sink_checks(lc: _LineCtx, levels: list, offset_levels: list) -> list[Check]:
@@ -247,7 +274,11 @@ def _sink_checks(lc: _LineCtx, levels: list, offset_levels: list) -> list[Check]
                             f"{_f(d.i_ol, 'A')} at {_f(float(d.v_ol[1]), 'V')}",
                             details={"drivers": {x[2].tap.label: x[1] for x in rows}},
                             **ctx.kw(subject=f"{up} {d.tap.label}"))
-            if chk.status == "fail":
+            if chk.status == "fail" and not np.isfinite(ln.rp_min):
+                chk.fix = ("no pull-up on this segment helps: the pull-ups across the translator "
+                           "alone draw more than the weakest sink's rating (see pullup-window)")
+                chk.message += f"; {chk.fix}"
+            elif chk.status == "fail":
                 chk.fix = (f"raise the effective pull-up to at least "
                            f"{_f(ln.rp_min / (1 - tol), 'Ω')} (Rp(min) at −{tol:.0%})")
                 chk.message += f"; {chk.fix}"
@@ -297,6 +328,7 @@ def _high_level_checks(lc: _LineCtx) -> None:
         if lim.v_nh_rel is not None:
             limit = lim.v_nh_rel * v
             c = worst_index(min_margin(nmh, limit))
+            figs["noise_margin_high"] = float(nmh[c])  # the check's value, as above
             grp.add(check_min("noise-margin-high", float(nmh[c]), float(limit[c]), "V",
                               lim.source_noise,
                               f"{up} high-level noise margin {_f(nmh[c], 'V')} (high level − "
@@ -310,17 +342,26 @@ def _fall_checks(lc: _LineCtx) -> None:
     """Fall time (upper bound from each driver's guaranteed sink) and tf(min)."""
     ctx, seg_in, ln, grp, figs, lim = lc.ctx, lc.seg_in, lc.ln, lc.grp, lc.figs, lc.lim
     v, tol, up, rp_lo, kw, far = lc.v, lc.tol, lc.up, lc.rp_lo, lc.kw, lc.far
-    # -- fall time: upper bound from each driver's guaranteed sink
-    falls = [(float(np.max(t)), d, "" if link is None else f" via {link.dev.ref}")
-             for t, d, link in fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far, ctx.seg_ins,
-                                           ln.signal)]
+    # -- fall time: upper bound from each driver's guaranteed sink, or the output fall
+    #    time its part states or a compliant output stage guarantees, whichever is less
+    falls = [(t, d, link, info) for t, d, link, info in
+             fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far, ctx.seg_ins, ln.signal)]
     if falls:
-        tf, d, via = max(falls, key=lambda x: x[0])
+        t, d, link, info = max(falls, key=lambda x: float(np.max(x[0])))
+        c = int(np.argmax(t))
+        tf = float(t[c])
         figs["fall_time"] = tf
-        grp.add(check_max("fall-time", tf, lim.tf_max, "s", lim.source_edges,
-                          f"{up} fall time at most {_f(tf, 's')} (driver {d.tap.label}{via} "
-                          f"sinking at least {_f(d.i_ol, 'A')} above {_f(float(d.v_ol[1]), 'V')}, "
-                          f"pull-up at −{tol:.0%}, Cb {_f(ln.cb, 'F')})", **kw))
+        via = "" if link is None else f" via {link.dev.ref}"
+        text, details = fall_basis(lim, d, info, c, ln.cb)
+        chk = check_max("fall-time", tf, lim.tf_max, "s", lim.source_edges,
+                        f"{up} fall time at most {_f(tf, 's')} (driver {d.tap.label}{via}: "
+                        f"{text}; pull-up at −{tol:.0%}, Cb {_f(ln.cb, 'F')}, {_CORNERS[c]})",
+                        details=details, **kw)
+        if chk.status == "fail":
+            chk.fix = ("a stronger sink, a larger pull-up (inside its window), less bus "
+                       "capacitance, or a part that states its output fall time (t_of_max)")
+            chk.message += f"; {chk.fix}"
+        grp.add(chk)
         # tf(min): a property of slope-controlled outputs
         tf_min = lim.tf_min(float(v[1]))
         if tf_min is not None:

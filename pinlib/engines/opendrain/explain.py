@@ -1,5 +1,6 @@
-"""Explanations of the open-drain engine: advice for a pull-up window that fails, and
-the figures and notes of a segment, drawn from the same inputs the checks use."""
+"""Explanations of the open-drain engine: advice for a pull-up window that fails, what
+bounds a fall time (and the sink model the levels share), and the figures and notes of a
+segment, drawn from the same inputs the checks use."""
 
 from __future__ import annotations
 
@@ -16,6 +17,7 @@ from pinlib.engines.opendrain.inputs import (
 )
 from pinlib.engines.opendrain.rules import (
     SIGNALS,
+    window_open,
 )
 from pinlib.model.result import Group
 from pinlib.physics import pullup as pu
@@ -82,26 +84,42 @@ def _no_fit_advice(lim: OpenDrainLimits, seg_in: SegmentInputs, ln: LineInputs) 
     """Quantified ways out when no passive pull-up fits the window."""
     tol = seg_in.tol
     v_max = float(seg_in.vdd[1])
-    eff_lo = ln.rp_min / (1 - tol)
     tips: list[str] = []
-    # 2. no passive pull-up fits: quantified ways out
-    if not math.isfinite(ln.rp_min):
-        tips.append(f"the weakest sink ({ln.rp_min_label}) cannot even carry the current the "
-                    "pull-ups across the translator already draw: raise those pull-ups, or use "
-                    "drivers with a larger rating or an active translator")
+    rp_min, label, weakest = ln.rp_min, ln.rp_min_label, ln.rp_min_driver
+    own = ln.own
+    if own is not None and own[1] is not None and not window_open(own[0], ln.rp_max, tol):
+        # this segment's own sinks cannot meet its Rp(max), the translator aside: the
+        # advice of a single segment, with the Rp(min) across the translator beside it
+        rp_min, weakest, label = own
+        tips.append(f"no resistor fits: Rp(max) {_f(ln.rp_max, 'Ω')} at Cb {_f(ln.cb, 'F')} "
+                    f"is below Rp(min) {_f(rp_min, 'Ω')} of this segment's own sinks (weakest "
+                    f"{label}), before the pull-ups across the translator (with them "
+                    f"{_f(ln.rp_min, 'Ω')}); the pull-up is a compromise")
+    elif not math.isfinite(rp_min):
+        if seg_in.blocked_by:
+            tips.append(f"the weakest sink ({label}) cannot even carry the current of the "
+                        f"pull-up across the translator: segment {', '.join(seg_in.blocked_by)} "
+                        "has no window of its own and its pull-up is a compromise; change that "
+                        "segment first (see its pullup-window)")
+        else:
+            tips.append(f"the weakest sink ({label}) cannot even carry the current the "
+                        "pull-ups across the translator already draw: raise those pull-ups, or "
+                        "use drivers with a larger rating or an active translator")
         return tips
+    else:
+        tips.append(f"no resistor fits: Rp(min) {_f(rp_min, 'Ω')} (weakest sink "
+                    f"{label or '—'}) is above Rp(max) "
+                    f"{_f(ln.rp_max, 'Ω')} at Cb {_f(ln.cb, 'F')}")
+    eff_lo = rp_min / (1 - tol)
     factor = ln.rise_factor
-    cb_lim = float(pu.cb_limit(lim.tr_max, ln.rp_min, tol, factor))
-    tips.append(f"no resistor fits: Rp(min) {_f(ln.rp_min, 'Ω')} (weakest sink "
-                f"{ln.rp_min_label or '—'}) is above Rp(max) "
-                f"{_f(ln.rp_max, 'Ω')} at Cb {_f(ln.cb, 'F')}")
+    cb_lim = float(pu.cb_limit(lim.tr_max, rp_min, tol, factor))
     tips.append(f"bring Cb below {_f(cb_lim, 'F')} (now {_f(ln.cb, 'F')}: "
                 f"{_f(ln.cb - cb_lim, 'F')} less: shorter traces or cable, fewer loads)")
     lower = lim.lower()
     if lower is not None:
         f_low = float(lower.rise_factor(float(seg_in.vdd[0])))
         rpmax_low = lower.tr_max / (f_low * ln.cb)
-        if ln.rp_min * (1 + tol) / (1 - tol) <= rpmax_low:
+        if rp_min * (1 + tol) / (1 - tol) <= rpmax_low:
             fitting = _series_range(seg_in.segment.pullup_series, eff_lo, rpmax_low / (1 + tol))
             tips.append(f"{lower.label} (tr ≤ {_f(lower.tr_max, 's')}, "
                         f"{_f(lower.f_max, 'Hz')}) allows Rp up to {_f(rpmax_low, 'Ω')}: "
@@ -112,16 +130,47 @@ def _no_fit_advice(lim: OpenDrainLimits, seg_in: SegmentInputs, ln: LineInputs) 
     tips.append(f"a bus buffer splitting the bus into {n} segments of under {_f(cb_lim, 'F')} each")
     v_lo, v_hi = lim.measuring_levels(float(seg_in.vdd[1]))
     i_cs = float(pu.current_source_needed(ln.cb, float(v_lo), float(v_hi), lim.tr_max))
-    weakest = ln.rp_min_driver.i_ol if ln.rp_min_driver else math.nan
-    ok_cs = "" if i_cs < weakest else f" — more than the weakest sink's {_f(weakest, 'A')}"
+    i_weak = weakest.i_ol if weakest is not None else math.nan
+    ok_cs = "" if i_cs < i_weak else f" — more than the weakest sink's {_f(i_weak, 'A')}"
     tips.append(f"an active (current-source) pull-up of at least {_f(i_cs, 'A')} "
                 f"(UM10204 rev. 6 §5.1){ok_cs}")
-    if ln.rp_min_driver is not None:
-        d = ln.rp_min_driver
+    if weakest is not None:
+        d = weakest
         i_need = float(pu.sink_current_needed(v_max, float(d.v_ol[1]), ln.rp_max, tol))
         tips.append(f"drivers sinking at least {_f(i_need, 'A')} at {_f(float(d.v_ol[1]), 'V')} "
                     f"(the weakest, {d.tap.label}, is rated {_f(d.i_ol, 'A')})")
     return tips
+
+
+#: The one sink model of a line's checks, stated in the v-ol and fall-time details.
+SINK_MODEL = ("I ≥ min(V·IOL/VOL, IOL): the datasheet point (VOL at IOL) read as a "
+               "resistance VOL/IOL below VOL and as a constant current above it; the v-ol "
+               "check uses the resistive part (valid while the sink current stays within IOL, "
+               "which sink-current checks), the fall-time bound both")
+
+
+def fall_basis(lim, d, info: dict, c: int, cb: float) -> tuple[str, dict]:
+    """What bounds the reported fall time (at corner ``c``): the text and the details."""
+    t_sink = float(info["t_sink"][c])
+    t_of = None if info["t_of"] is None else float(np.broadcast_to(info["t_of"], (2,))[c])
+    sink = (f"sinking at least {_f(d.i_ol, 'A')} above {_f(float(d.v_ol[c]), 'V')} and as "
+            f"{_f(float(d.r_on[c]), 'Ω')} (VOL/IOL) below it")
+    details = {"bound": "constant sink current", "sink_bound": t_sink,
+               "sink_model": SINK_MODEL}
+    if t_of is not None and np.isfinite(t_of) and t_of <= t_sink:
+        if info["kind"] == "part":
+            src = d.tap.source("t_of_max")
+            details.update(bound="t_of_max of its part", bound_source=src)
+            return (f"its part's output fall time t_of_max {_f(t_of, 's')} ({src}); the sink "
+                    f"alone bounds it at {_f(t_sink, 's')}"), details
+        spec = lim.output_fall()
+        details.update(bound="tof of a compliant output stage", bound_source=spec.source)
+        return (f"tof {_f(t_of, 's')} of a compliant {lim.label} output stage ({spec.source}), "
+                f"Cb inside its range; the sink alone bounds it at {_f(t_sink, 's')}"), details
+    if info["why"]:
+        details["tof_not_used"] = info["why"]
+        return sink, details
+    return sink, details
 
 
 _WORST = {"bus_capacitance": max, "pullup": min, "rp_min": max, "rp_max": min, "rise_time": max,

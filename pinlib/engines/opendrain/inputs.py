@@ -31,6 +31,7 @@ from pinlib.engines.opendrain.rules import (
     pin_rules,
     rp_max_of,
     rp_min_of,
+    window_open,
 )
 from pinlib.library.schema import Pin
 from pinlib.library.values import Sourced
@@ -131,6 +132,9 @@ class LineInputs:
     rise_factor: float
     rp_min_label: str = ""
     coupled: bool = False
+    #: Rp(min) from this segment's own drivers alone (before the current across pass
+    #: transistors), its weakest sink and label; set where the segment is coupled. [Ω]
+    own: tuple | None = None
 
 
 @dataclass
@@ -156,6 +160,8 @@ class SegmentInputs:
     notes: list[str] = field(default_factory=list)
     defaults: dict = field(default_factory=dict)   # note text -> [where]
     cb_notes: list[str] = field(default_factory=list)
+    #: Segments joined through pass transistors that have no window of their own.
+    blocked_by: list[str] = field(default_factory=list)
 
     def r_eff(self, signal: str) -> float:
         """Every pull-up on the line in parallel, nominal. [Ω]"""
@@ -448,25 +454,76 @@ def _rp_min_coupled(seg_in: SegmentInputs, signal: str, seg_ins: list[SegmentInp
     return best, who, label
 
 
+def _own_window(s: SegmentInputs) -> bool:
+    """Every line of a segment has a window a value of its tolerance fits (with the
+    Rp(min) the lines carry now)."""
+    return all(bool(window_open(ln.rp_min, ln.rp_max, s.tol)) for ln in s.lines.values())
+
+
 def _couple(seg_ins: list[SegmentInputs], links: dict[int, list[_Link]]) -> None:
     """Choose the pull-ups of segments joined by pass transistors together.
 
     Each segment's Rp(min) depends on the pull-ups of the segments it is joined to (see
     :func:`_rp_min_coupled`); starting from the independent choice, each segment is
     re-chosen in turn against the others' present values until nothing changes (a few
-    rounds; at most 8).
+    rounds; at most 8).  A segment whose own window is empty (its own sinks cannot meet
+    its Rp(max), the translator aside) keeps its independent compromise; a segment whose
+    sinks the pull-ups across the translator already fill (Rp(min) infinite: every value
+    scores alike) keeps the value it has: neither is pushed to the end of the series.
     """
+    coupled = [s for s in seg_ins if any(ln.kind == "mosfet" for ln in links[s.index])]
+    held: set[int] = set()
+    for s in coupled:
+        for ln in s.lines.values():
+            ln.own = (ln.rp_min, ln.rp_min_driver, ln.rp_min_label)
+        if not _own_window(s):
+            held.add(s.index)
+            if s.auto:
+                s.notes.append(f"no value fits this segment's own window ({_windows(s)}, "
+                               "its own sinks alone): its pull-up is the compromise "
+                               f"{_f(s.pullup, 'Ω')}, and the segments across the translator "
+                               "are chosen against it; see pullup-window for what to change")
+    for s in coupled:
+        s.blocked_by = [seg_ins[ln.other].segment.id for ln in links[s.index]
+                        if ln.kind == "mosfet" and ln.other in held]
     for _ in range(8):
         changed = False
-        for s in seg_ins:
-            if not any(ln.kind == "mosfet" for ln in links[s.index]):
+        for s in coupled:
+            _set_coupled(s, seg_ins, links)
+            if s.index in held or _sinks_full(s):
                 continue
-            for sig, ln in s.lines.items():
-                ln.rp_min, ln.rp_min_driver, ln.rp_min_label = _rp_min_coupled(
-                    s, sig, seg_ins, links[s.index])
-                ln.coupled = True
             before = s.pullup
             _choose(s)
             changed |= s.pullup != before
         if not changed:
             break
+    for s in coupled:  # Rp(min) against the values finally chosen
+        _set_coupled(s, seg_ins, links)
+        if s.index not in held and s.auto and _sinks_full(s):
+            s.notes.append(f"with the current across the translator no value fits "
+                           f"({_windows(s)}): the pull-up stays at {_f(s.pullup, 'Ω')}, the "
+                           "last value its window allowed")
+
+
+def _sinks_full(s: SegmentInputs) -> bool:
+    """A line whose sinks the pull-ups across the translator already fill (Rp(min)
+    infinite): no value is better than another, so the segment is not re-chosen."""
+    return any(not math.isfinite(ln.rp_min) for ln in s.lines.values())
+
+
+def _set_coupled(s: SegmentInputs, seg_ins: list[SegmentInputs], links) -> None:
+    for sig, ln in s.lines.items():
+        ln.rp_min, ln.rp_min_driver, ln.rp_min_label = _rp_min_coupled(
+            s, sig, seg_ins, links[s.index])
+        ln.coupled = True
+
+
+def _windows(s: SegmentInputs) -> str:
+    def lo(ln):
+        if ln.rp_min_driver is None:
+            return "— (no driver)"
+        return _f(ln.rp_min, "Ω") if math.isfinite(ln.rp_min) else "none (its sinks are full)"
+
+    return "; ".join(f"{sig.upper()} Rp(min) {lo(ln)}, Rp(max) "
+                     f"{_f(ln.rp_max, 'Ω') if math.isfinite(ln.rp_max) else 'no limit'}"
+                     for sig, ln in s.lines.items())

@@ -106,6 +106,13 @@ def auto_margins(series: str, lines, tol: float):
     return cand, worst
 
 
+def window_open(rp_min, rp_max, tol):
+    """Whether a pull-up window holds any value at its tolerance:
+    ``Rp(min)/(1 − tol) <= Rp(max)/(1 + tol)`` (False where Rp(min) is infinite); floats
+    or arrays. [1]"""
+    return np.asarray(rp_min) / (1 - tol) <= np.asarray(rp_max) / (1 + tol)
+
+
 def _clip0(x):
     """``max(x, 0)`` for a float or an array."""
     return np.maximum(x, 0.0) if isinstance(x, np.ndarray) else max(x, 0.0)

@@ -14,7 +14,7 @@ import math
 import re
 
 from pinlib.core.errors import PinlibError
-from pinlib.model.result import CAUTION, BusResult, Group
+from pinlib.model.result import CAUTION, BusResult, Group, margin_text
 from pinlib.present import charts, labels
 from pinlib.present.report import format_value
 
@@ -124,7 +124,7 @@ def checks_table(bus_result: BusResult, caption: str = "Checks") -> str:
             f'<td style="{CELL}">{e(labels.check_label(c.id))}</td>'
             f'<td style="{CELL}">{e(where)}</td>'
             f'<td style="{NUM}">{e(value)}</td><td style="{NUM}">{e(limit)}</td>'
-            f'<td style="{NUM}">{e(margin(c.margin))}</td>'
+            f'<td style="{NUM}">{e(margin_text(c))}</td>'
             f'<td style="{CELL};font-size:11px">{e(c.source)}</td></tr>')
     return (f'<table style="{TABLE}">{_caption(caption)}'
             f"<tr>{head}</tr>{''.join(rows)}</table>")

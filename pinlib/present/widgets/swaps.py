@@ -496,9 +496,7 @@ class SwapExplorer(_Panel):
                  len(r.buses) > 1 else "")
         notes = "".join(f"<li>{e(n)}</li>" for n in r.notes)
         return (f'<div style="{BLOCK};font-size:12px">Position {e(r.ref)}, now '
-                f"<code>{e(r.current)}</code>: {len(r.candidates)} of {r.library_size} "
-                f"placeable parts can serve it ({r.excluded} cannot: pin functions or "
-                f"drives){which}</div>"
+                f"<code>{e(r.current)}</code>: {e(r.count_text())}{which}</div>"
                 f'<table style="{TABLE}"><tr>'
                 + "".join(f'<th style="{HEAD}">{e(h)}</th>' for h in head) + "</tr>"
                 + "".join(rows) + "</table>" + block(more, size=11)
