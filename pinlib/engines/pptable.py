@@ -314,7 +314,7 @@ def _evaluate(bus: Bus, design: Design):
 
         sa = spi_analysis(bus, design)
         return evaluate_spi(bus, design, analysis=sa), sa
-    return pp.evaluate_bus(bus, design), None
+    return pp.evaluate_board(bus, design), None
 
 
 _FIELDS = ("copi", "cs", "cipo")

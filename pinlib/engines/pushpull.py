@@ -33,7 +33,7 @@ from pinlib.library.schema import Pin
 from pinlib.model.design import Bus, Design, Device
 from pinlib.model.result import BusResult, Check
 
-__all__ = ["evaluate_bus", "evaluate_gpio", "gpio_pin"]
+__all__ = ["evaluate_bus", "evaluate_board", "evaluate_gpio", "gpio_pin"]
 
 
 # --------------------------------------------------------------------------- GPIO
@@ -157,7 +157,11 @@ def evaluate_gpio(bus: Bus, design: Design, *, analysis: dict | None = None) -> 
 
 
 def evaluate_bus(bus: Bus, design: Design) -> BusResult:
-    """Evaluate an ``spi`` or ``gpio`` bus.
+    """Evaluate an ``spi`` or ``gpio`` bus, every check at its worst corner.
+
+    :func:`evaluate_board` on the bus as designed, then on the corners of its tolerances
+    (:func:`pinlib.engines.ppworst.at_worst_corners`): each check is that of its worst
+    corner, and names it.
 
     Parameters
     ----------
@@ -177,6 +181,15 @@ def evaluate_bus(bus: Bus, design: Design) -> BusResult:
     ------
     DesignError
         A line no device drives, a controller without the outputs an SPI bus needs.
+    """
+    from pinlib.engines.ppworst import at_worst_corners
+
+    return at_worst_corners(bus, design, evaluate_board(bus, design), evaluate_board)
+
+
+def evaluate_board(bus: Bus, design: Design) -> BusResult:
+    """Evaluate an ``spi`` or ``gpio`` bus at one board: its values as given, no corners
+    (what :func:`evaluate_bus` evaluates at each corner, and the studies at each variant).
     """
     if bus.protocol == "spi":
         return evaluate_spi(bus, design)
