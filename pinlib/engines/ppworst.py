@@ -232,9 +232,13 @@ def _assemble(bus, nominal, specs, worst, board, index, seen) -> BusResult:
     assert j == len(names)
     for fig in _LOWEST_FIGURES:
         if fig in out.figures and out.figures[fig].value is not None:
-            vals = [r.figures[fig].value for r in seen.values()
-                    if fig in r.figures and r.figures[fig].value is not None]
-            out.figures[fig] = replace(out.figures[fig], value=min(float(v) for v in vals))
+            vals = [r.figures[fig].value for r in seen.values() if fig in r.figures]
+            # a board where it does not exist (a receiver that never switches) is the worst
+            low = None if None in vals else min(float(v) for v in vals)
+            out.figures[fig] = replace(out.figures[fig], value=low)
+            if low is None:
+                out.notes.append(f"{fig}: none at a corner of the tolerances (see the "
+                                 "checks there)")
     out.notes.append(f"checks at their worst corner: {method_text(len(specs))}, "
                      f"{len(seen)} boards evaluated (an \"auto\" series resistor kept at its "
                      "nominal choice); line figures are the nominal board's")

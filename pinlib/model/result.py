@@ -23,6 +23,7 @@ __all__ = [
     "check_max",
     "check_min",
     "check_true",
+    "rule_of_thumb",
     "min_margin",
     "max_margin",
     "status_codes",
@@ -82,6 +83,7 @@ class Check:
     subject: str | None = None  # the signal, device or pin the check is about
     fix: str | None = None      # what would make a failing check pass
     details: dict = field(default_factory=dict)
+    reason: str | None = None   # why the value does not exist (value and margin None)
 
     def to_json(self) -> dict:
         out = {
@@ -98,6 +100,8 @@ class Check:
             out["subject"] = self.subject
         if self.fix:
             out["fix"] = self.fix
+        if self.reason:
+            out["reason"] = self.reason
         if self.details:
             out["details"] = {k: _json_any(v) for k, v in self.details.items()}
         return out
@@ -190,6 +194,17 @@ def check_min(id, value, limit, unit, source, message, *, warn_margin=0.10, **kw
               else (math.inf if value >= 0 else -math.inf))
     return Check(id, _status(margin, warn_margin), value, limit, unit, margin, source, message,
                  **kw)
+
+
+def rule_of_thumb(check: Check) -> Check:
+    """A check whose limit is a rule of thumb: it warns where it would fail (a check
+    fails only against a published or datasheet limit or a physical impossibility).
+    Its margin and numbers are unchanged; ``details["rule_of_thumb"]`` is True."""
+    check.details = {**check.details, "rule_of_thumb": True}
+    if check.status == "fail":
+        check.status = "warn"
+        check.message += " (a rule of thumb: a warning, not a failure)"
+    return check
 
 
 def check_true(id, ok, source, message, **kw) -> Check:

@@ -41,7 +41,7 @@ def _margin(c: Check) -> str:
         return ""
     m = float(c.margin)
     if not math.isfinite(m):
-        return "∞"
+        return "—"  # no number: the message says why (a zero limit, a value that is none)
     return f"{m * 100:+.0f} %"
 
 

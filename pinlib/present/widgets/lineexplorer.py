@@ -12,7 +12,8 @@ import tomlkit
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.engines.dispatch import design_result
-from pinlib.engines.pushpull import evaluate_gpio, gpio_analyses
+from pinlib.engines.ppworst import at_worst_corners
+from pinlib.engines.pushpull import evaluate_board, gpio_analyses
 from pinlib.library import load_library
 from pinlib.library.loader import Library
 from pinlib.present import charts, plotdata
@@ -271,7 +272,9 @@ class LineExplorer(_Panel):
             design = _load(text, self.library)
             bus = design.buses[0]
             solved = gpio_analyses(bus, design)  # the line solved once, for checks and charts
-            result = design_result(design, [evaluate_gpio(bus, design, analysis=solved)])
+            # the checks at their worst corners, as pinlib check gives them
+            result = design_result(design, [at_worst_corners(
+                bus, design, evaluate_board(bus, design, analysis=solved), evaluate_board)])
             edge = plotdata.edge_vs_load_data(bus, design, self.signal, analysis=solved)
             wave = plotdata.waveform_data(bus, design, self.signal, analysis=solved,
                                           points=self.wave_points)

@@ -177,14 +177,18 @@ class SpiBudget(_Panel):
 
     def _recompute(self) -> None:
         """Evaluate the bus at the chosen clock and mode; redraw the budget."""
-        from pinlib.engines.spi import evaluate_spi, spi_analysis
+        from pinlib.engines.ppworst import at_worst_corners
+        from pinlib.engines.pushpull import evaluate_board
+        from pinlib.engines.spi import spi_analysis
 
         try:
             design = design_from_text(self.design_data(), self.base.text, self.base.path,
                                       library=self.library)
             bus = design.bus(self.bus.value)
             sa = spi_analysis(bus, design)
-            br = evaluate_spi(bus, design, analysis=sa)  # the lines solved once, not twice
+            br = evaluate_board(bus, design, analysis=sa)  # the lines solved once
+            # the checks at their worst corners, as pinlib check gives them
+            br = at_worst_corners(bus, design, br, evaluate_board)
             tb = plotdata.timing_budget_data(bus, design, analysis=sa) if sa.terms else None
         except PinlibError as err:
             self.design = self.bus_result = self.analysis = self.budget_data = None
