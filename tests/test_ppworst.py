@@ -87,3 +87,14 @@ def test_search_finds_the_worst_vertex_and_screens_above_the_limit():
         assert got.shape == (2, 8)
         assert list(got[0, :3]) == [1.0, -1.0, 1.0] and got[0, 7] == -1.0
         assert (got[1] == -1.0).all()
+
+
+def test_shared_line_analyses_change_no_number(monkeypatch):
+    from pinlib.engines import pushline
+
+    d = _design()
+    bus = d.buses[0]
+    shared = evaluate_bus(bus, d).to_json()
+    # every line analysed afresh at every corner: derived from the same engine
+    monkeypatch.setattr(pushline, "_line_key", lambda *a: None)
+    assert evaluate_bus(bus, d).to_json() == shared

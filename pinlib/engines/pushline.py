@@ -1042,7 +1042,44 @@ def analyse_line(signal: str, line: Line, drivers: Sequence[Endpoint],
     InputError
         When a waveform record of the line would need more than
         :data:`MAX_TIME_STEPS` time steps.
+
+    Notes
+    -----
+    Inside a :func:`pinlib.engines.memo.run_scope` a line analysed with identical inputs
+    is analysed once (the corners of a bus's tolerances vary one line's length at a time);
+    the analysis returned is then shared and must not be changed.
     """
+    key = _line_key(signal, line, drivers, loads, receivers, clock, clock_line,
+                    warn_margin, bus_id)
+    if key is None or not memo.active():
+        return _analyse_line(signal, line, drivers, loads, receivers, clock, clock_line,
+                             warn_margin, bus_id)
+    return memo.remember(key, lambda: _analyse_line(
+        signal, line, drivers, loads, receivers, clock, clock_line, warn_margin, bus_id))
+
+
+def _endpoint_key(e: Endpoint) -> tuple:
+    d = e.device
+    return (d.ref, d.part_id, id(d.part), d.role, d.supply, d.switched, d.series_resistor,
+            d.side, d.internal_pullups, d.pin, d.capacitance_factor, e.pin_name, id(e.pin),
+            float(e.vdd))
+
+
+def _line_key(signal, line, drivers, loads, receivers, *rest) -> tuple | None:
+    """An exact key of a line analysis's inputs (parts by identity: one library serves a
+    run), or None when an input is not hashable."""
+    key = ("analyse_line", signal, line, tuple(_endpoint_key(e) for e in drivers),
+           tuple(_endpoint_key(e) for e in loads), tuple(_endpoint_key(e) for e in receivers),
+           *rest)
+    try:
+        hash(key)
+    except TypeError:
+        return None
+    return key
+
+
+def _analyse_line(signal, line, drivers, loads, receivers, clock, clock_line, warn_margin,
+                  bus_id) -> LineAnalysis:
     res = LineResult(signal=signal)
     # Validity warnings of the trace models and of the solver become notes of the line.
     with warnings.catch_warnings(record=True) as caught:
