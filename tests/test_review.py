@@ -337,8 +337,19 @@ def test_edge_vs_load_agrees_with_the_result(demo):
     assert seen == 2  # SCLK of both SPI buses
 
 
+def _nominal_board(design):
+    """The SPI buses as designed, no tolerance corners: what the charts draw (the result
+    holds each check at its worst corner since issue 13.1)."""
+    from pinlib.engines.dispatch import design_result
+    from pinlib.engines.pushpull import evaluate_board
+
+    return design_result(design, [evaluate_board(b, design) for b in design.buses
+                                  if b.protocol == "spi"])
+
+
 def test_waveforms_agree_with_the_result(demo):
-    design, result = demo
+    design, _ = demo
+    result = _nominal_board(design)
     terminated = 0
     for bus, lines, sig, ln in _lines(design, result):
         w = plotdata.waveform_data(bus, design, sig, analysis=lines)
@@ -368,7 +379,8 @@ def test_waveforms_agree_with_the_result(demo):
 
 
 def test_timing_budget_agrees_with_the_result(demo):
-    design, result = demo
+    design, _ = demo
+    result = _nominal_board(design)
     for bus in design.buses:
         if bus.protocol != "spi":
             continue
@@ -376,7 +388,7 @@ def test_timing_budget_agrees_with_the_result(demo):
         tb = plotdata.timing_budget_data(bus, design)
         # derived from the SPI budget structure (docs/references.md, SPI): T/2 at the clock
         assert tb.period == pytest.approx(1.0 / bus.clock, rel=1e-15)
-        budget_checks = [c for c in br.checks if c.id != "f-max"]
+        budget_checks = [c for c in br.checks if c.id not in ("f-max", "supply-range")]
         assert len(tb.margins) == len(budget_checks)
         for c in budget_checks:
             path = f"{c.id} {c.subject}"

@@ -288,7 +288,9 @@ def test_swap_charts_the_bus_with_a_status_change_first():
 
 def test_change_list_is_grouped_by_bus_status_changes_first():
     x = SwapExplorer(DEMO)
-    x.apply_swap("U7", "adc-spi")  # a status change on flash
+    # a status change on flash: a slow read-back fails the CIPO setup (adc-spi, used
+    # here before, only met its 20 MHz rating at 20 MHz, a pass since issue 13.9)
+    x.apply_swap("U7", "display-controller-spi")
     x.apply_swap("U4", "io-expander-i2c")  # figures move on sensors, no status change
     html = x.changes_html.value
     assert html.index("Bus <b>flash</b>") < html.index("Bus <b>sensors</b>")

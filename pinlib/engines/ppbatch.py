@@ -9,7 +9,7 @@ line's series resistor no tolerance, so it stays nominal; a line whose resistor 
 the resistor the design chose, whatever its own trace turned out to be).
 
 A small batch (corners, a short Monte Carlo run) is evaluated by the engine itself,
-variant by variant (:func:`pinlib.engines.pushpull.evaluate_bus` on the varied bus;
+variant by variant (:func:`pinlib.engines.pushpull.evaluate_board` on the varied bus;
 identical variants once), so that every margin is the engine's.  The line engine picks
 its time grid from each variant's own time constants and delays, so the waveform
 solvers cannot share one batched solve across variants.  A large batch is evaluated
@@ -122,7 +122,7 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
         not have (its engine result lists other checks) has a NaN margin and passes.
         ``notes`` say how the variants were evaluated.
     """
-    nominal = nominal if nominal is not None else pp.evaluate_bus(bus, design)
+    nominal = nominal if nominal is not None else pp.evaluate_board(bus, design)
     names = check_names(bus, nominal)
     chosen = chosen_resistors(nominal)
     index = {nm["name"]: i for i, nm in enumerate(names)}
@@ -165,7 +165,7 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
     inverse = np.asarray(inverse).reshape(-1)
     for r, row in enumerate(rows):
         got = dict(zip(keys, row, strict=True))
-        res = nominal if not keys else pp.evaluate_bus(vary_bus(bus, got.get, chosen),
+        res = nominal if not keys else pp.evaluate_board(vary_bus(bus, got.get, chosen),
                                                       design)
         at = where[inverse == r]
         for nm, (_, c) in zip(check_names(bus, res), flat_checks(res), strict=True):

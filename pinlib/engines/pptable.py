@@ -19,7 +19,8 @@ bus's timing checks are sums of flights from several lines
 3. **Bus.**  The timing checks are computed from the interpolated flights by the
    engine's own budget (``budget_terms``, which takes arrays) and the margin rule of
    :func:`pinlib.model.result.check_min`; statuses come from the margins by the engine's
-   rule (:func:`pinlib.model.result.status_codes`).
+   rule (:func:`pinlib.model.result.status_codes`).  A device's ``supply-range`` check
+   is the engine's rule at the board's own rail (nothing interpolated).
 4. **Verification.**  The table is refused (the caller then runs the engine on every
    board) when the nodes do not all give the same checks, when a check's status does
    not follow from its margin, or when, at :data:`VERIFY` boards drawn inside the box,
@@ -43,6 +44,7 @@ import numpy as np
 
 from pinlib.engines import ppvariant as ppv
 from pinlib.engines import pushpull as pp
+from pinlib.engines.opendrain.rules import supply_margin
 from pinlib.engines.ppvariant import number_or_nan as _num
 from pinlib.engines.pushline import Flight
 from pinlib.model.design import Bus, Design
@@ -200,12 +202,21 @@ class LineTable:
             if kind == "const":
                 _, mg, val, lim, code = plan
                 margin[j], value[j], limit[j], status[j] = mg, val, lim, code
+            elif kind == "supply":  # the engine's rule, at each board's rail
+                _, key, v, lo, hi = plan
+                f = factors.get(key) if key is not None else None
+                rail = v * (np.ones(n) if f is None else np.asarray(f, dtype=float).reshape(n))
+                mg, low = supply_margin(rail, rail, lo, hi)
+                margin[j], value[j], limit[j] = mg, rail, np.where(low, lo, hi)
+                status[j] = status_codes(mg, 0.0)
             elif kind == "line":
                 _, sig, slots, margin_rule, code = plan
                 vals = got[sig]
                 for arr, slot in zip((margin, value, limit), slots, strict=True):
                     arr[j] = vals[:, slot]
-                if margin_rule:
+                if margin_rule == 1:   # a rule of thumb: its status from its margin, at most warn
+                    status[j] = np.minimum(status_codes(margin[j], self._warn), 1)
+                elif margin_rule:
                     by_margin.append(j)
                 else:
                     status[j] = code
@@ -326,11 +337,11 @@ def _interpolate(grids: list, table: np.ndarray, coords: np.ndarray) -> np.ndarr
 def _evaluate(bus: Bus, design: Design):
     """The engine's result of a (varied) bus, and its SPI analysis (None for GPIO)."""
     if bus.protocol == "spi":
-        from pinlib.engines.spi import evaluate_spi, spi_analysis
+        from pinlib.engines.spi import spi_analysis
 
         sa = spi_analysis(bus, design)
-        return evaluate_spi(bus, design, analysis=sa), sa
-    return pp.evaluate_bus(bus, design), None
+        return pp.evaluate_board(bus, design, analysis=sa), sa
+    return pp.evaluate_board(bus, design), None
 
 
 _FIELDS = ("copi", "cs", "cipo")
@@ -447,10 +458,14 @@ def _plan(names, node_checks, labels, values, sa, bus, design) -> list:
         mgs = np.array([_num(c.margin) for c in at_nodes])
         c0 = at_nodes[0]
         if sig is None:
-            # evaluate_spi lists the budget's terms first, in order, then the f_max checks
+            # evaluate_board lists the budget's terms first, in order, then the f_max and
+            # supply-range checks
             if term_k < n_terms and sa.terms[term_k].id == c0.id:
                 plans.append(("term", term_k, 1.0 / float(bus.clock)))
                 term_k += 1
+                continue
+            if c0.id == "supply-range":
+                plans.append(_supply_plan(bus, c0.subject))
                 continue
             if len(codes) != 1 or len({_num(c.value) for c in at_nodes}) > 1:
                 raise _Refused(f"{nm['name']}: a bus check that moves and is not a "
@@ -470,16 +485,27 @@ def _plan(names, node_checks, labels, values, sa, bus, design) -> list:
             else:
                 raise _Refused(f"{nm['name']}: not finite at every node")
         has_margin = c0.margin is not None
-        by_margin = has_margin and all(STATUS_CODES[c.status] == int(status_codes(
-            np.array([_num(c.margin)]), warn)[0]) for c in at_nodes)
+        # a rule of thumb warns where its margin would fail (model.result.rule_of_thumb)
+        cap = 1 if c0.details.get("rule_of_thumb") else 2
+        by_margin = has_margin and all(STATUS_CODES[c.status] == min(int(status_codes(
+            np.array([_num(c.margin)]), warn)[0]), cap) for c in at_nodes)
         if not by_margin and len(codes) != 1:
             raise _Refused(f"{nm['name']}: its status moves, but not with its margin")
         if has_margin and not np.isfinite(mgs).all() and len(np.unique(mgs)) != 1:
             raise _Refused(f"{nm['name']}: a margin not finite at every node")
-        plans.append(("line", sig, tuple(slots), by_margin, min(codes)))
+        plans.append(("line", sig, tuple(slots), by_margin and cap, min(codes)))
     if term_k != n_terms:
         raise _Refused("the budget's terms are not all checks")
     return plans
+
+
+def _supply_plan(bus: Bus, ref: str) -> tuple:
+    """A device's supply-range check: its rail's key and value, and its part's range."""
+    for d, v, lo, hi, _ in pp.supply_rows(bus):
+        if d.ref == ref:
+            vtol = bus.supply_tolerance or 0.0
+            return ("supply", ppv.rail_key(v, vtol) if vtol > 0 else None, v, lo, hi)
+    raise AssertionError(ref)  # the engine made the check from these rows
 
 
 def _flight_slots(sa, labels) -> list:

@@ -15,6 +15,7 @@ from pinlib.model.design import Bus
 
 __all__ = [
     "parameter_specs",
+    "rail_key",
     "vary_bus",
     "chosen_resistors",
     "check_names",
@@ -23,7 +24,8 @@ __all__ = [
 ]
 
 
-def _rail_key(v: float, tol: float) -> tuple:
+def rail_key(v: float, tol: float) -> tuple:
+    """The parameter key of a rail of ``v`` volts at ± ``tol``."""
     return ("rail", round(float(v), 9), round(float(tol), 9))
 
 
@@ -55,7 +57,7 @@ def parameter_specs(bus: Bus) -> list[tuple]:
         rails = [float(bus.supply)] + [float(d.supply) for d in bus.devices
                                        if d.supply is not None]
         for v in rails:
-            add(f"rail {format_si(v, 'V')}", "supply", v, vtol, "V", _rail_key(v, vtol))
+            add(f"rail {format_si(v, 'V')}", "supply", v, vtol, "V", rail_key(v, vtol))
     for d in bus.devices:
         if d.capacitance_tolerance:
             add(f"{d.ref} pin capacitance on {bus.id}", "capacitance", 1.0,
@@ -119,7 +121,7 @@ def vary_bus(bus: Bus, factor, resistors: dict[str, float] | None = None) -> Bus
     def rail(v):
         if v is None:
             return None
-        f = factor(_rail_key(v, vtol))
+        f = factor(rail_key(v, vtol))
         return v if f is None else float(v) * f
 
     def device(d):

@@ -43,8 +43,10 @@ How a line is built
 
 Checks on each line: ``overshoot`` and ``undershoot`` against each pin's ``abs_max``
 (at that pin's own supply), ``ringing`` (re-crossings of VIH/VIL after the first
-crossing: a failure on SCLK, a warning on data lines), ``edge-time`` (the 10–90 %
-edge under :data:`EDGE_FRACTION` of the clock period), and ``level-high`` /
+crossing: a failure on SCLK, where it clocks twice, a warning on data lines),
+``edge-time`` (the 10–90 % edge under :data:`EDGE_FRACTION` of the clock period: a rule
+of thumb, so it warns and never fails), ``line-delay`` (the one-way delay within one clock
+period, a rule of thumb that flags a design outside a board-level bus), and ``level-high`` /
 ``level-low`` (the driver's VOH/VOL against each receiver's VIH/VIL at its own supply).
 
 Assumptions and limits: supplies are nominal (the bus's, or a device's own); every
@@ -70,7 +72,7 @@ from pinlib.core.quantity import format_si
 from pinlib.engines import memo
 from pinlib.library.schema import Pin
 from pinlib.model.design import Bus, Device, Line, Section
-from pinlib.model.result import Check, LineResult, check_max, check_min
+from pinlib.model.result import Check, LineResult, check_max, check_min, rule_of_thumb
 from pinlib.physics import driver as drv
 from pinlib.physics import lines as tl
 from pinlib.physics import rc
@@ -126,6 +128,11 @@ EDGE_FRACTION = 0.10
 EDGE_RULE = ("10-90 % edge within 10 % of the clock period (rule of thumb, common "
              "practice; e.g. Morrison, Digital Circuit Boards: Mach 1 GHz, Wiley 2012, "
              "§1.14)")
+
+LINE_DELAY_RULE = (
+    "one-way line delay within one clock period: beyond it the line holds more than one "
+    "bit in flight, and a board-level bus model (lossless lines, lines of one bus matched "
+    "in delay) no longer describes it (common practice, no source)")
 
 #: Largest undershoot below ground allowed when a pin's abs_max leaves more room. [V]
 UNDERSHOOT_DEFAULT = 0.5
@@ -1004,11 +1011,11 @@ def _si_checks(a: LineAnalysis, cases: dict, clock: float | None, clock_line: bo
     if clock:
         edge = max(max(c.rise.t_edge, c.fall.t_edge) for c in cases.values())
         limit = EDGE_FRACTION / clock
-        checks.append(check_max(
+        checks.append(rule_of_thumb(check_max(
             "edge-time", edge, limit, "s", EDGE_RULE,
             f"slowest 10-90 % edge {_fmt(edge, 's')} at the far end against "
             f"{EDGE_FRACTION:.0%} of the {_fmt(1.0 / clock, 's')} period",
-            warn_margin=warn, details={"fraction": EDGE_FRACTION}))
+            warn_margin=warn, details={"fraction": EDGE_FRACTION})))
     return checks
 
 
@@ -1058,7 +1065,44 @@ def analyse_line(signal: str, line: Line, drivers: Sequence[Endpoint],
     InputError
         When a waveform record of the line would need more than
         :data:`MAX_TIME_STEPS` time steps.
+
+    Notes
+    -----
+    Inside a :func:`pinlib.engines.memo.run_scope` a line analysed with identical inputs
+    is analysed once (the corners of a bus's tolerances vary one line's length at a time);
+    the analysis returned is then shared and must not be changed.
     """
+    key = _line_key(signal, line, drivers, loads, receivers, clock, clock_line,
+                    warn_margin, bus_id)
+    if key is None or not memo.active():
+        return _analyse_line(signal, line, drivers, loads, receivers, clock, clock_line,
+                             warn_margin, bus_id)
+    return memo.remember(key, lambda: _analyse_line(
+        signal, line, drivers, loads, receivers, clock, clock_line, warn_margin, bus_id))
+
+
+def _endpoint_key(e: Endpoint) -> tuple:
+    d = e.device
+    return (d.ref, d.part_id, id(d.part), d.role, d.supply, d.switched, d.series_resistor,
+            d.side, d.internal_pullups, d.pin, d.capacitance_factor, e.pin_name, id(e.pin),
+            float(e.vdd))
+
+
+def _line_key(signal, line, drivers, loads, receivers, *rest) -> tuple | None:
+    """An exact key of a line analysis's inputs (parts by identity: one library serves a
+    run), or None when an input is not hashable."""
+    key = ("analyse_line", signal, line, tuple(_endpoint_key(e) for e in drivers),
+           tuple(_endpoint_key(e) for e in loads), tuple(_endpoint_key(e) for e in receivers),
+           *rest)
+    try:
+        hash(key)
+    except TypeError:
+        return None
+    return key
+
+
+def _analyse_line(signal, line, drivers, loads, receivers, clock, clock_line, warn_margin,
+                  bus_id) -> LineAnalysis:
     res = LineResult(signal=signal)
     # Validity warnings of the trace models and of the solver become notes of the line.
     with warnings.catch_warnings(record=True) as caught:
@@ -1164,6 +1208,13 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
 
     for c in _si_checks(a, a.cases, clock, clock_line, warn_margin):
         res.add(c)
+    if clock and a.delay > 0:
+        res.add(rule_of_thumb(check_max(
+            "line-delay", a.delay, 1.0 / clock, "s", LINE_DELAY_RULE,
+            f"one-way delay {_fmt(a.delay, 's')} against the {_fmt(1.0 / clock, 's')} clock "
+            "period", warn_margin=warn_margin,
+            fix="shorten the line, lower the clock, or model the link as a transmission "
+                "system (losses, skew between lines) outside pinlib")))
     if setting == "auto":
         with_f = _figures_of(a.cases)
         details = {"rs_chosen": a.rs, "rs_ideal": a.rs_ideal, "z0": a.z0,

@@ -27,13 +27,16 @@ from dataclasses import replace
 
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError
+from pinlib.core.quantity import format_si
+from pinlib.engines.opendrain.rules import supply_margin
 from pinlib.engines.pushline import Endpoint, analyse_line, device_supply
 from pinlib.engines.spi import evaluate_spi
 from pinlib.library.schema import Pin
 from pinlib.model.design import Bus, Design, Device
-from pinlib.model.result import BusResult, Check
+from pinlib.model.result import BusResult, Check, check_max, check_min
 
-__all__ = ["evaluate_bus", "evaluate_gpio", "gpio_pin"]
+__all__ = ["evaluate_bus", "evaluate_board", "evaluate_gpio", "gpio_pin", "supply_checks",
+           "supply_rows"]
 
 
 # --------------------------------------------------------------------------- GPIO
@@ -153,11 +156,61 @@ def evaluate_gpio(bus: Bus, design: Design, *, analysis: dict | None = None) -> 
     return res
 
 
+# --------------------------------------------------------------------------- supply
+
+
+def supply_rows(bus: Bus) -> list[tuple]:
+    """Each device of the bus whose part states a supply range:
+    ``(device, rail, min, max, source)``, the rail the device runs from (its own, else
+    the bus's) and its part's range on that side. [V]"""
+    out, seen = [], set()
+    for d in bus.devices:
+        if d.ref in seen:
+            continue
+        seen.add(d.ref)
+        sup = d.part.supply_for((d.side or "a") if d.is_bridge else None)
+        if sup is None:
+            continue
+        why = sup.min.source or d.part.provenance.source or "part file"
+        out.append((d, device_supply(d, bus), float(sup.min.value), float(sup.max.value),
+                    f"{d.part_id} supply ({why})"))
+    return out
+
+
+def supply_checks(bus: Bus) -> list[Check]:
+    """Every device's rail against its part's supply range (the rule of the open-drain
+    engine: :func:`pinlib.engines.opendrain.rules.supply_margin`, a datasheet range is a
+    hard limit, no warning band).  The rail's tolerance enters through the corners
+    :func:`evaluate_bus` takes. [V]"""
+    out = []
+    for d, v, lo, hi, src in supply_rows(bus):
+        m, low_side = supply_margin(v, v, lo, hi)
+        rng = f"{format_si(lo, 'V')} to {format_si(hi, 'V')}"
+        if bool(low_side):
+            chk = check_min("supply-range", v, lo, "V", src,
+                            f"{d.ref} runs from {format_si(v, 'V')}; its part needs {rng}",
+                            subject=d.ref, warn_margin=0.0)
+        else:
+            chk = check_max("supply-range", v, hi, "V", src,
+                            f"{d.ref} runs from {format_si(v, 'V')}; its part allows {rng}",
+                            subject=d.ref, warn_margin=0.0)
+        if chk.status == "fail":
+            chk.fix = ("give the device its own rail (supply = \"...\" on the device) or "
+                       "choose a part for this rail")
+            chk.message += f"; {chk.fix}"
+        out.append(chk)
+    return out
+
+
 # --------------------------------------------------------------------------- entry
 
 
 def evaluate_bus(bus: Bus, design: Design) -> BusResult:
-    """Evaluate an ``spi`` or ``gpio`` bus.
+    """Evaluate an ``spi`` or ``gpio`` bus, every check at its worst corner.
+
+    :func:`evaluate_board` on the bus as designed, then on the corners of its tolerances
+    (:func:`pinlib.engines.ppworst.at_worst_corners`): each check is that of its worst
+    corner, and names it.
 
     Parameters
     ----------
@@ -178,9 +231,26 @@ def evaluate_bus(bus: Bus, design: Design) -> BusResult:
     DesignError
         A line no device drives, a controller without the outputs an SPI bus needs.
     """
+    from pinlib.engines.ppworst import at_worst_corners
+
+    return at_worst_corners(bus, design, evaluate_board(bus, design), evaluate_board)
+
+
+def evaluate_board(bus: Bus, design: Design, *, analysis=None) -> BusResult:
+    """Evaluate an ``spi`` or ``gpio`` bus at one board: its values as given, no corners
+    (what :func:`evaluate_bus` evaluates at each corner, and the studies at each variant).
+
+    ``analysis``: the bus's :func:`~pinlib.engines.spi.spi_analysis` or
+    :func:`gpio_analyses` when the caller has it (its lines are then not solved again).
+    """
     if bus.protocol == "spi":
-        return evaluate_spi(bus, design)
-    if bus.protocol == "gpio":
-        return evaluate_gpio(bus, design)
-    raise InputError(M.NOT_PUSH_PULL_BUS, field="protocol",
-                     value=bus.protocol, expected="'spi' or 'gpio'")
+        res = evaluate_spi(bus, design, analysis=analysis)
+    elif bus.protocol == "gpio":
+        res = evaluate_gpio(bus, design, analysis=analysis)
+    else:
+        raise InputError(M.NOT_PUSH_PULL_BUS, field="protocol",
+                         value=bus.protocol, expected="'spi' or 'gpio'")
+    for chk in supply_checks(bus):
+        res.add(chk)
+    return res
+

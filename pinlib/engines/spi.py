@@ -53,8 +53,11 @@ trip crosses it twice (SCLK out, CIPO back), so ``2 t_pd`` per bridge.
 
 Every margin is ``a T - k`` with ``a`` either 1/2 or 0, so the highest clock at which
 all of them hold is found in closed form (:func:`max_clock`), not by sweeping.
-``max_clock`` also honours every part's ``f_max`` and the edge rule of each line
-(:data:`pinlib.engines.pushline.EDGE_FRACTION` of the period).
+``max_clock`` also honours every part's ``f_max``, and names what sets it
+(``max_clock_limited_by``).  The edge rule of each line
+(:data:`pinlib.engines.pushline.EDGE_FRACTION` of the period) is a rule of thumb: its
+own highest clock is the figure ``max_clock_edge_rule`` beside it, and it does not
+lower ``max_clock``.
 
 Limits: a signal the design does not route is not connected (no CIPO route: no read
 budget); the design gives one CS route per bus, so every peripheral's CS pin loads it
@@ -82,7 +85,6 @@ from pinlib.core.errors import DesignError, InputError
 from pinlib.core.quantity import format_si
 from pinlib.engines.pushline import (
     EDGE_FRACTION,
-    EDGE_RULE,
     SIGNAL_FUNCTION,
     Flight,
     analyse_line,
@@ -90,7 +92,7 @@ from pinlib.engines.pushline import (
     is_bridge,
 )
 from pinlib.model.design import Bus, Design, Device, Line
-from pinlib.model.result import BusResult, check_max, check_min
+from pinlib.model.result import BusResult, Check, check_max, check_min
 
 __all__ = [
     "SpiMode",
@@ -632,30 +634,30 @@ class SpiAnalysis:
     notes: list
 
     def max_clock(self) -> float:
-        """Highest clock at which every timing margin, ``f_max`` and the edge rule hold. [Hz]"""
-        a = [t.a for t in self.terms] + [EDGE_FRACTION for _ in self.edge_terms]
-        k = [_finite_or_inf(t.required - t.b) for t in self.terms] + \
-            [_finite_or_inf(e) for _, e in self.edge_terms]
-        f_lim = min([f for _, f, _ in self.f_limits], default=math.inf)
-        if not a:
-            return float(f_lim)
-        return float(max_clock(np.array(a), np.array(k), f_lim))
+        """Highest clock at which every timing margin and every part's ``f_max`` hold:
+        the limits of the parts' data (the edge rule of thumb is
+        :meth:`edge_rule_clock`, beside it). [Hz]"""
+        return self.clock_limits()[0][0]
 
-    def clock_limits(self) -> list[tuple[str, float, str]]:
-        """The highest clock each requirement allows on its own, lowest first:
-        ``(what, clock, source)`` with ``what`` as ``"copi-setup U7"``, ``"edge-time
-        sclk"`` or ``"f_max U1"``; the first is the one that sets :meth:`max_clock`. [Hz]
-        """
-        out = []
-        for t in self.terms:
-            out.append((f"{t.id} {t.subject}",
-                        float(max_clock([t.a], [_finite_or_inf(t.required - t.b)])),
-                        t.source or "not recorded by the part: taken as 0"))
-        for sig, edge in self.edge_terms:
-            out.append((f"edge-time {sig}",
-                        float(max_clock([EDGE_FRACTION], [_finite_or_inf(edge)])), EDGE_RULE))
-        out.extend((f"f_max {ref}", float(f), source) for ref, f, source in self.f_limits)
-        return sorted(out, key=lambda x: x[1])
+    def clock_limits(self) -> list[tuple[float, str, str]]:
+        """Each timing requirement's and each part's own highest clock, lowest first:
+        ``(clock, name, source)``, the name as ``"cipo-setup U2"`` or ``"f_max U1"`` and
+        the source of its limit; an unlimited bus gives ``[(inf, "nothing", "")]``. The
+        first sets :meth:`max_clock`. [Hz]"""
+        out = [(float(max_clock([t.a], [_finite_or_inf(t.required - t.b)])),
+                f"{t.id} {t.subject}", t.source or "not recorded by the part: taken as 0")
+               for t in self.terms]
+        out += [(float(f), f"f_max {ref}", source) for ref, f, source in self.f_limits]
+        out.sort(key=lambda x: x[0])
+        return out or [(math.inf, "nothing", "")]
+
+    def edge_rule_clock(self) -> tuple[float, str]:
+        """Highest clock at which every line's far-end edge keeps within
+        :data:`~pinlib.engines.pushline.EDGE_FRACTION` of the period (a rule of thumb),
+        and the line that sets it. [Hz]"""
+        got = [(float(max_clock([EDGE_FRACTION], [_finite_or_inf(e)])), sig)
+               for sig, e in self.edge_terms]
+        return min(got, default=(math.inf, "nothing"))
 
 
 def _finite_or_inf(x: float) -> float:
@@ -838,34 +840,70 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
     res.notes.append(f"timing reference: {TIMING_REFERENCE}")
     warn = design.warn_margin
     clock = float(bus.clock)
-    period = 1.0 / clock
-    worst: dict[str, float] = {}
+    worst: dict[str, float | None] = {}
+    why: dict[str, str] = {}
     for t in sa.terms:
-        avail = float(t.available(period))
-        title, body = _TERM_TEXT[t.id]
-        source = t.source or "not recorded by the part: taken as 0"
-        res.add(check_min(
-            t.id, avail, t.required, "s", source,
-            f"{title.format(ref=t.subject)}: "
-            + body.format(avail=_fmt(avail, "s"), req=_fmt(t.required, "s"))
-            + f" at {_fmt(clock, 'Hz')}", warn_margin=warn, subject=t.subject,
-            details={k: v for k, v in t.parts.items()} | {"mode": sa.mode.mode}))
-        m = avail - t.required
-        m = m if math.isfinite(m) else -math.inf
-        worst[t.id] = min(worst.get(t.id, math.inf), m)
+        chk = res.add(_term_check(t, clock, warn, sa.mode.mode))
+        if chk.reason is not None:
+            worst[t.id] = None   # no time exists; the check fails and says why
+            why.setdefault(t.id, chk.reason)
+        elif t.id not in worst or worst[t.id] is not None:
+            m = float(chk.value) - t.required
+            worst[t.id] = min(worst.get(t.id, math.inf), m)
     for ref, f, source in sa.f_limits:
         res.add(check_max("f-max", clock, f, "Hz", source,
                           f"clock {_fmt(clock, 'Hz')} against {ref}'s f_max {_fmt(f, 'Hz')}",
-                          warn_margin=warn, subject=ref))
+                          warn_margin=0.0, subject=ref))  # a rating: at it is inside
     for la in sa.lines.values():
         res.lines.append(la.result)
-    res.figure("max_clock", sa.max_clock(), "Hz")
+    (f_top, by, _), (f_edge, edge_sig) = sa.clock_limits()[0], sa.edge_rule_clock()
+    res.figure("max_clock", f_top if f_top > 0 else None, "Hz")
+    res.figure("max_clock_limited_by", by, "")
+    res.figure("max_clock_edge_rule", f_edge, "Hz")
+    if f_top <= 0:
+        res.notes.append(f"max_clock: none, no clock satisfies {by}")
+    elif math.isfinite(f_top):
+        res.notes.append(f"max_clock {_fmt(f_top, 'Hz')}: the highest clock the timing "
+                         f"budget and the parts' f_max allow, set by {by}")
+    if math.isfinite(f_edge):
+        res.notes.append(f"max_clock_edge_rule {_fmt(f_edge, 'Hz')}: the highest clock at "
+                         f"which every far-end edge keeps within {EDGE_FRACTION:.0%} of the "
+                         f"period (rule of thumb; set by {edge_sig}); it warns, it does not "
+                         "limit")
     for fig, tid in (("cipo_setup_margin", "cipo-setup"), ("copi_setup_margin", "copi-setup"),
                      ("copi_hold_margin", "copi-hold")):
         res.figure(fig, worst.get(tid), "s")
         if tid not in worst:
             res.notes.append(f"{fig}: not computed (signal not routed or data missing)")
+        elif tid in why:
+            res.notes.append(f"{fig}: none, {why[tid]}")
     return res
+
+
+def _term_check(t: Term, clock: float, warn: float, mode: int):
+    """The check of one timing term at the clock; when a flight has no finite time (a
+    receiver that never crosses its threshold) a failing check without a value, whose
+    ``reason`` says why."""
+    title, body = _TERM_TEXT[t.id]
+    source = t.source or "not recorded by the part: taken as 0"
+    details = {k: v for k, v in t.parts.items()} | {"mode": mode}
+    head = f"{title.format(ref=t.subject)}: "
+    avail = float(t.available(1.0 / clock))
+    if not math.isfinite(avail):
+        never = sorted({k.split("_")[0].upper() for k, v in t.parts.items()
+                        if isinstance(v, float) and not math.isfinite(v)})
+        what = " and ".join(never) or "a signal"
+        reason = (f"{what} never crosses the receiving input's threshold (VIH on a rise, VIL "
+                  "on a fall), so no time is available: see the line's level checks")
+        return Check(t.id, "fail", None, t.required, "s", None, source,
+                     head + reason + f"; {_fmt(t.required, 's')} required",
+                     subject=t.subject, details=details, reason=reason,
+                     fix="make the driver's high level reach the receiver's VIH (a "
+                         "level translator, or parts on one rail)")
+    return check_min(
+        t.id, avail, t.required, "s", source,
+        head + body.format(avail=_fmt(avail, "s"), req=_fmt(t.required, "s"))
+        + f" at {_fmt(clock, 'Hz')}", warn_margin=warn, subject=t.subject, details=details)
 
 
 def _scaled_line(line: Line, length: float) -> Line:
@@ -953,9 +991,6 @@ def max_clock_vs_t_valid(bus: Bus, design: Design, t_valid, peripheral: str | No
     if ref in known and base is None:
         raise InputError(M.NO_T_VALID_TO_VARY, field="t_valid",
                          value=ref)
-    for _, e in sa.edge_terms:
-        a_cols.append(np.full(tv.shape, EDGE_FRACTION))
-        k_cols.append(np.full(tv.shape, _finite_or_inf(e)))
     f_lim = min([f for _, f, _ in sa.f_limits], default=math.inf)
     if not a_cols:
         return np.full(tv.shape, f_lim)

@@ -24,6 +24,7 @@ __all__ = [
     "check_min",
     "check_true",
     "margin_text",
+    "rule_of_thumb",
     "min_margin",
     "max_margin",
     "status_codes",
@@ -86,6 +87,7 @@ class Check:
     #: the unit of an absolute margin (value minus limit, or limit minus value) where a
     #: margin relative to the limit means nothing (a limit of 0 V); None: relative
     margin_unit: str | None = None
+    reason: str | None = None   # why the value does not exist (value and margin None)
 
     def to_json(self) -> dict:
         out = {
@@ -102,6 +104,8 @@ class Check:
             out["subject"] = self.subject
         if self.fix:
             out["fix"] = self.fix
+        if self.reason:
+            out["reason"] = self.reason
         if self.details:
             out["details"] = {k: _json_any(v) for k, v in self.details.items()}
         if self.margin_unit is not None:
@@ -111,14 +115,15 @@ class Check:
 
 def margin_text(c: Check) -> str:
     """A check's margin for people: ``+12 %`` relative to its limit, or in the check's unit
-    (``+210 mV``) where the margin is absolute; ``∞`` / ``−∞`` where it is not finite."""
+    (``+210 mV``) where the margin is absolute; "—" where it is not a finite number (the
+    check's message says why: a limit of zero, a value that does not exist)."""
     from pinlib.core.quantity import format_si
 
     if c.margin is None:
         return ""
     m = float(c.margin)
     if not math.isfinite(m):
-        return "∞" if m > 0 else ("−∞" if m < 0 else "—")
+        return "—"
     if c.margin_unit is not None:
         text = format_si(abs(m), c.margin_unit)
         return ("−" if m < 0 else "+") + text
@@ -212,6 +217,17 @@ def check_min(id, value, limit, unit, source, message, *, warn_margin=0.10, **kw
               else (math.inf if value >= 0 else -math.inf))
     return Check(id, _status(margin, warn_margin), value, limit, unit, margin, source, message,
                  **kw)
+
+
+def rule_of_thumb(check: Check) -> Check:
+    """A check whose limit is a rule of thumb: it warns where it would fail (a check
+    fails only against a published or datasheet limit or a physical impossibility).
+    Its margin and numbers are unchanged; ``details["rule_of_thumb"]`` is True."""
+    check.details = {**check.details, "rule_of_thumb": True}
+    if check.status == "fail":
+        check.status = "warn"
+        check.message += " (a rule of thumb: a warning, not a failure)"
+    return check
 
 
 def check_true(id, ok, source, message, **kw) -> Check:

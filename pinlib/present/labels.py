@@ -47,6 +47,8 @@ FIGURES: dict[str, str] = {
     "sda_setup_margin": "SDA setup margin",
     # SPI buses
     "max_clock": "Highest clock",
+    "max_clock_limited_by": "Highest clock set by",
+    "max_clock_edge_rule": "Highest clock, edge rule of thumb",
     "copi_setup_margin": "COPI setup margin",
     "copi_hold_margin": "COPI hold margin",
     "cipo_setup_margin": "CIPO setup margin",
@@ -88,6 +90,7 @@ CHECKS: dict[str, str] = {
     "pullup-window": "Pull-up window Rp(min)…Rp(max)",
     "scl-frequency": "SCL frequency",
     "edge-time": "Edge time",
+    "line-delay": "Line delay ≤ clock period",
     "bridge-gate-drive": "Translator gate drive",
 }
 

@@ -64,6 +64,7 @@ from pinlib.core.quantity import format_si
 from pinlib.engines import opendrain as od
 from pinlib.engines import ppbatch as ppb
 from pinlib.engines import pptable
+from pinlib.engines import ppworst as ppw
 from pinlib.engines.opendrain import batch as ob
 from pinlib.model.design import Bus, Design, Segment
 from pinlib.model.result import json_number
@@ -1112,16 +1113,18 @@ def _margins(bb: ob.BusBatch) -> np.ndarray:
 
 def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
             progress=None) -> CornersResult:
-    """The worst corner of each check of the design's open-drain buses.
+    """The worst corner of each check of the design's buses.
 
     Parameters
     ----------
     design : Design
         A loaded design. [1]
     exhaustive_limit : int, optional
-        Try all 2**k vertices of a bus with up to this many parameters; above it,
-        screen each parameter alone at both ends and improve the combined corner one
-        flip at a time. [1]
+        Try all 2**k vertices of an open-drain bus with up to this many parameters;
+        above it, screen each parameter alone at both ends and improve the combined
+        corner one flip at a time.  A push-pull bus takes the engine's own search
+        (:func:`pinlib.engines.ppworst.search`), so that its corners and its checks'
+        statuses agree. [1]
     progress : bool, callable or None, optional
         Progress bar over the buses. [1]
 
@@ -1149,7 +1152,12 @@ def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
                                      nominal=nominal[bus.id])
                 return ob.build(bus, design, scen, collected=collected[bus.id])
 
-            if k <= exhaustive_limit:
+            if bus.protocol in PUSH_PULL_PROTOCOLS:
+                # the engine's own search, so a check's corner here and its status in
+                # the engine's result agree
+                worst = ppw.search(k, lambda u, run=run: _key(_margins(run(u))))
+                methods[bus.id] = ppw.method_text(k)
+            elif k <= exhaustive_limit:
                 verts = (np.array(list(itertools.product((-1.0, 1.0), repeat=k))) if k
                          else np.zeros((1, 0)))
                 bb = run(verts)

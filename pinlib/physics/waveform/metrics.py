@@ -221,15 +221,22 @@ def undershoot(v, v_low=0.0):
     Returns
     -------
     numpy.ndarray or float
-        ``v_low - min(v)`` (``-min(v)`` for ground), or 0 if it stays at or above it. [V]
+        ``v_low - min(v)`` (``-min(v)`` for ground), or 0 if it stays at or above it; a
+        dip within 1e-12 of the waveform's largest level is the rounding of a settled
+        edge and reads 0. [V]
 
     Examples
     --------
     >>> float(undershoot([3.3, -0.4, 0.1, 0.0]))
     0.4
+    >>> float(undershoot([3.3, 1.0, -8.9e-16]))
+    0.0
     """
     v = np.asarray(v, dtype=float)
-    out = np.maximum(np.asarray(v_low, dtype=float) - v.min(axis=-1), 0.0)
+    low = np.asarray(v_low, dtype=float)
+    dip = low - v.min(axis=-1)
+    scale = np.maximum(np.abs(v).max(axis=-1), np.abs(low))
+    out = np.where(dip > _SETTLED_RTOL * scale, dip, 0.0)
     return out[()] if np.ndim(out) == 0 else out
 
 

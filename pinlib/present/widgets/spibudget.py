@@ -210,8 +210,10 @@ class SpiBudget(_Panel):
 
     @staticmethod
     def _limits(sa, br: BusResult) -> list[ClockLimit]:
-        """Each requirement's own highest clock, as the engine worked it out."""
-        return [ClockLimit(*x) for x in sa.clock_limits()]
+        """Each requirement's own highest clock, as the engine worked it out (the
+        edge rule of thumb is not among them: it warns and sets no limit)."""
+        return [ClockLimit(what, clock, source) for clock, what, source in sa.clock_limits()
+                if what != "nothing"]
 
     def _show_limits(self) -> None:
         f = self.figures.get("max_clock")

@@ -1,0 +1,245 @@
+"""A push-pull bus (SPI, GPIO) at its worst-case corners.
+
+The engine's result of a push-pull bus holds every check at its worst corner over the
+bus's tolerances (``supply_tolerance``, ``length_tolerance``, ``capacitance_tolerance``
+of the bus, ``capacitance_tolerance`` of its devices; see
+:func:`pinlib.engines.ppvariant.parameter_specs`), as the open-drain engine holds its
+checks at the worst rail and pull-up corners.  A line whose series resistor is "auto"
+keeps the value chosen on the nominal board at every corner (a built board carries the
+resistor the design chose).
+
+Which corners are evaluated (:func:`search`):
+
+* up to :data:`EXHAUSTIVE_LIMIT` parameters, every vertex of the tolerance box;
+* above it, the nominal board and each parameter alone at both ends; then, per check,
+  the vertex with every parameter at the end that lowered that check's margin when moved
+  alone (a check's margin moves one way with each of a line's length, capacitance and
+  rail in practice); each check takes the worst of all the boards evaluated.
+
+:func:`pinlib.studies.whatif.corners` uses the same search on push-pull buses, so the
+corner it lists for a check and the check's status in the result agree.
+"""
+
+from __future__ import annotations
+
+import itertools
+import math
+from collections.abc import Callable
+from dataclasses import replace
+
+import numpy as np
+
+from pinlib.engines.memo import run_scope
+from pinlib.engines.ppvariant import (
+    check_names,
+    chosen_resistors,
+    flat_checks,
+    parameter_specs,
+    vary_bus,
+)
+from pinlib.model.design import Bus, Design
+from pinlib.model.result import BusResult
+
+__all__ = ["EXHAUSTIVE_LIMIT", "search", "rank_margin", "at_worst_corners", "method_text"]
+
+#: Every vertex of the tolerance box is evaluated up to this many parameters (2**6 = 64
+#: evaluations, most of whose waveforms the run memo shares); above it, the screened
+#: search of :func:`search`.
+EXHAUSTIVE_LIMIT = 6
+
+#: Bus figures taken at their worst over the corners: the smallest is the worst.
+_LOWEST_FIGURES = ("max_clock", "cipo_setup_margin", "copi_setup_margin", "copi_hold_margin")
+
+
+def rank_margin(check) -> float:
+    """The margin a check is ranked by across corners: its margin, ``-inf`` for a
+    failing check without a finite one (a yes/no check that fails, a NaN margin), 0 for
+    a passing yes/no check. [1]"""
+    m = check.margin
+    if m is None or isinstance(m, bool):
+        return -math.inf if check.status == "fail" else 0.0
+    m = float(m)
+    return -math.inf if math.isnan(m) else m
+
+
+def search(k: int, margins: Callable[[np.ndarray], np.ndarray],
+           limit: int = EXHAUSTIVE_LIMIT) -> np.ndarray:
+    """The worst board of each check over a tolerance box of ``k`` parameters.
+
+    Parameters
+    ----------
+    k : int
+        Toleranced parameters. [1]
+    margins : callable
+        ``margins(u)`` for boards ``u`` of shape ``(n, k)`` (each entry -1, 0 or +1:
+        the end of each parameter, 0 nominal) returns the ranked margins of the ``m``
+        checks, shape ``(n, m)`` (NaN counted as the worst). [1]
+    limit : int, optional
+        Every vertex up to this many parameters. [1]
+
+    Returns
+    -------
+    numpy.ndarray
+        Shape ``(m, k)``: the board at which each check's margin is lowest. [1]
+    """
+    if k <= limit:
+        pts = (np.array(list(itertools.product((-1.0, 1.0), repeat=k))) if k
+               else np.zeros((1, 0)))
+        mg = _nan_low(margins(pts))
+        return pts[np.argmin(mg, axis=0)]
+    pts = np.zeros((2 * k + 1, k))
+    for i in range(k):
+        pts[1 + 2 * i, i], pts[2 + 2 * i, i] = -1.0, 1.0
+    mg = _nan_low(margins(pts))                                   # (2k+1, m)
+    lower = mg[1::2] < mg[2::2]                                   # (k, m): the -1 end hurts
+    combined = np.where(lower.T, -1.0, 1.0)                       # (m, k)
+    uniq, inverse = np.unique(combined, axis=0, return_inverse=True)
+    mg_c = _nan_low(margins(uniq))                                # (u, m)
+    m = mg.shape[1]
+    at_c = mg_c[np.asarray(inverse).reshape(-1), np.arange(m)]    # each check at its own
+    best = np.argmin(mg, axis=0)
+    take = at_c < mg[best, np.arange(m)]
+    return np.where(take[:, None], combined, pts[best])
+
+
+def _nan_low(mg: np.ndarray) -> np.ndarray:
+    return np.where(np.isnan(mg), -np.inf, mg)
+
+
+def method_text(k: int, limit: int = EXHAUSTIVE_LIMIT) -> str:
+    """How :func:`search` covers ``k`` parameters, for a note."""
+    if k == 0:
+        return "no toleranced parameter"
+    if k <= limit:
+        return f"all {2 ** k} corners of {k} parameters"
+    return (f"{k} parameters: each alone at both ends, then for each check every parameter "
+            "at the end that lowered its margin")
+
+
+def at_worst_corners(bus: Bus, design: Design, nominal: BusResult,
+                     evaluate: Callable[[Bus, Design], BusResult]) -> BusResult:
+    """``nominal`` with every check taken at its worst corner.
+
+    Parameters
+    ----------
+    bus : Bus
+        An ``spi`` or ``gpio`` bus of ``design``. [1]
+    design : Design
+        The design. [1]
+    nominal : BusResult
+        ``evaluate(bus, design)``: the bus as designed. [1]
+    evaluate : callable
+        The engine at one board (no corners). [1]
+
+    Returns
+    -------
+    BusResult
+        The nominal result when nothing is toleranced; else a copy whose checks are the
+        worst corner's (each check's message names its corner, ``details["corner"]``
+        lists it), whose bus figures ``max_clock`` and the timing margins are the lowest
+        over the boards evaluated, and whose notes say which corners were evaluated.
+        Line figures stay those of the nominal board.
+    """
+    specs = parameter_specs(bus)
+    if not specs:
+        return nominal
+    k = len(specs)
+    chosen = chosen_resistors(nominal)
+    names = [nm["name"] for nm in check_names(bus, nominal)]
+    index = {nm: j for j, nm in enumerate(names)}
+    seen: dict[tuple, BusResult] = {}
+
+    def board(u) -> BusResult:
+        key = tuple(float(x) for x in u)
+        if key not in seen:
+            if not any(key):
+                seen[key] = nominal
+            else:
+                f = {s[-1]: 1.0 + s[3] * x for s, x in zip(specs, key, strict=True)}
+                seen[key] = evaluate(vary_bus(bus, f.get, chosen), design)
+        return seen[key]
+
+    def margins(u: np.ndarray) -> np.ndarray:
+        out = np.full((len(u), len(names)), np.inf)
+        for r, row in enumerate(u):
+            res = board(row)
+            for nm, (_, c) in zip(check_names(bus, res), flat_checks(res), strict=True):
+                j = index.get(nm["name"])
+                if j is not None:
+                    out[r, j] = rank_margin(c)
+        return out
+
+    with run_scope():
+        worst = search(k, margins)
+    return _assemble(bus, nominal, specs, worst, board, index, seen)
+
+
+def _corner_text(specs, u, moves=None) -> str:
+    """The corner ``u`` for people: each parameter off nominal, but those that
+    ``moves(i)`` says leave the check where it is."""
+    parts = []
+    for i, (s, x) in enumerate(zip(specs, u, strict=True)):
+        if x and (moves is None or moves(i)):
+            sign = "+" if x > 0 else "−"
+            parts.append(f"{s[0]} {sign}{s[3] * 100:.3g} %")
+    return ", ".join(parts) if parts else "nominal"
+
+
+def _assemble(bus, nominal, specs, worst, board, index, seen) -> BusResult:
+    """The worst-case result: each check from its worst board."""
+    picked = {}
+    for j, u in enumerate(worst):
+        res = board(u)
+        for nm, (_, c) in zip(check_names(bus, res), flat_checks(res), strict=True):
+            if index.get(nm["name"]) == j:
+                picked[j] = (c, u)
+    names = check_names(bus, nominal)
+
+    def worst_check(j, c):
+        got = picked.get(j)
+        if got is None or not any(got[1]) or rank_margin(got[0]) >= rank_margin(c):
+            return c  # no corner is worse than the board as designed
+        w, u = got
+
+        def moves(i):  # flipping parameter i changes the check (unknown: say it does)
+            v = np.array(u, dtype=float)
+            v[i] = -v[i]
+            other = seen.get(tuple(float(x) for x in v))
+            if other is None:
+                return True
+            for nm, (_, oc) in zip(check_names(bus, other), flat_checks(other), strict=True):
+                if index.get(nm["name"]) == j:
+                    a, b = rank_margin(oc), rank_margin(w)
+                    return not (a == b or abs(a - b) <= 1e-12 * max(1.0, abs(b)))
+            return True
+
+        text = _corner_text(specs, u, moves)
+        return replace(w, message=f"{w.message} (worst corner: {text})",
+                       details={**w.details, "corner": text})
+
+    out = replace(nominal, checks=[], lines=[], figures=dict(nominal.figures),
+                  notes=list(nominal.notes))
+    j = 0
+    for ln in nominal.lines:
+        checks = []
+        for c in ln.checks:
+            checks.append(worst_check(j, c))
+            j += 1
+        out.lines.append(replace(ln, checks=checks))
+    for c in nominal.checks:
+        out.checks.append(worst_check(j, c))
+        j += 1
+    assert j == len(names)
+    for fig in _LOWEST_FIGURES:
+        if fig in out.figures and out.figures[fig].value is not None:
+            vals = [r.figures[fig].value for r in seen.values() if fig in r.figures]
+            # a board where it does not exist (a receiver that never switches) is the worst
+            low = None if None in vals else min(float(v) for v in vals)
+            out.figures[fig] = replace(out.figures[fig], value=low)
+            if low is None:
+                out.notes.append(f"{fig}: none at a corner of the tolerances (see the "
+                                 "checks there)")
+    out.notes.append(f"checks at their worst corner: {method_text(len(specs))}, "
+                     f"{len(seen)} boards evaluated (an \"auto\" series resistor kept at its "
+                     "nominal choice); line figures are the nominal board's")
+    return out

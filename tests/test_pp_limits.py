@@ -1,0 +1,160 @@
+"""Push-pull checks (SPI, GPIO): which limits fail and which warn, and one status rule
+at a limit (issue 13 items 7 and 9).
+
+A check fails only against a published or datasheet limit, or a physical impossibility;
+a rule of thumb (the 10 % edge rule) warns.  The designs are invented (tests/data).
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import replace
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from pinlib.engines.dispatch import check_design
+from pinlib.engines.pushline import EDGE_FRACTION
+from pinlib.model.design import load_design
+
+DATA = Path(__file__).parent / "data"
+
+
+def _slow_edge(clock: float | None = None):
+    d = load_design(DATA / "spi-slow-edge.toml")
+    if clock is not None:
+        d = replace(d, buses=tuple(replace(b, clock=clock) for b in d.buses))
+    return d
+
+
+def test_edge_rule_of_thumb_warns_and_does_not_lower_max_clock():
+    d = _slow_edge()
+    res = check_design(d)
+    bus = res.bus("flash")
+    chk = next(ln for ln in bus.lines if ln.signal == "sclk").check("edge-time")
+    # common practice, no source: 10 % of the 50 ns period of 20 MHz
+    assert chk.limit == pytest.approx(5e-9, rel=1e-12)
+    assert chk.value > chk.limit and chk.margin < 0      # 5.3 ns against 5 ns
+    assert chk.status == "warn" and chk.details["rule_of_thumb"] is True
+    assert "rule of thumb" in chk.message
+    assert res.status == "warn" and res.exit_code() == 0
+    # every timing check passes at 20 MHz; max_clock is the limit of the parts' data:
+    # mcu-3v3's f_max of 24 MHz (the built-in class's typical value), named
+    assert all(c.status == "pass" for c in bus.checks)
+    assert bus.figures["max_clock"].value == pytest.approx(24e6, rel=1e-12)
+    assert bus.figures["max_clock_limited_by"].value == "f_max U1"
+    # derived from the edge rule: f = 10 % / edge
+    assert bus.figures["max_clock_edge_rule"].value == pytest.approx(
+        EDGE_FRACTION / chk.value, rel=1e-12)
+    assert bus.figures["max_clock_edge_rule"].value < 20e6
+    assert any("rule of thumb" in n and "max_clock_edge_rule" in n for n in bus.notes)
+
+
+def test_a_timing_term_that_limits_the_clock_is_named():
+    res = check_design(load_design(DATA / "long-spi-link.toml")).bus("link")
+    # the long link's CIPO round trip is its slowest requirement (check says so)
+    assert res.figures["max_clock_limited_by"].value == "cipo-setup U2"
+    assert res.figures["max_clock"].value < 24e6
+
+
+def test_a_device_exactly_at_its_rated_clock_passes():
+    res = check_design(_slow_edge(24e6)).bus("flash")
+    fmax = [c for c in res.checks if c.id == "f-max" and c.subject == "U1"][0]
+    # common practice, no source: the class mcu-3v3 rates 24 MHz; at its rating it is inside
+    assert fmax.value == 24e6 and fmax.limit == 24e6 and fmax.margin == 0
+    assert fmax.status == "pass"
+    over = check_design(_slow_edge(24.1e6)).bus("flash")
+    assert [c for c in over.checks if c.id == "f-max" and c.subject == "U1"][0].status == "fail"
+
+
+def test_supply_range_on_spi_and_gpio_buses():
+    d = load_design(DATA / "spi-5v-flash.toml")
+    res = check_design(d)
+    assert res.exit_code() == 1
+    for bus_id, ref in (("flash", "U2"), ("irq", "U3")):
+        bus = res.bus(bus_id)
+        chk = [c for c in bus.checks if c.id == "supply-range" and c.subject == ref][0]
+        # derived from the rail: 5 V + 5 % = 5.25 V at the worst corner, against the
+        # class nor-flash-spi's 3.6 V maximum (common practice, no source)
+        assert chk.value == pytest.approx(5.25, rel=1e-12)
+        assert chk.limit == pytest.approx(3.6, rel=1e-12)
+        assert chk.status == "fail" and "rail 5 V +5 %" in chk.message
+        ok = [c for c in bus.checks if c.id == "supply-range" and c.subject == "U1"][0]
+        # common practice, no source: mcu-5v 4.5-5.5 V holds the 4.75-5.25 V rail
+        assert ok.status == "pass"
+
+
+def test_supply_range_from_tables_equals_the_engine():
+    from pinlib.engines import ppbatch, pptable
+    from pinlib.engines.ppvariant import chosen_resistors, parameter_specs
+    from pinlib.engines.pushpull import evaluate_board
+
+    d = load_design(DATA / "spi-5v-flash.toml")
+    bus = d.bus("flash")
+    nominal = evaluate_board(bus, d)
+    axes = pptable.axes_of(parameter_specs(bus), 1.0, 0.0)
+    table = pptable.tabulate(bus, d, axes, chosen_resistors(nominal))
+    assert not isinstance(table, str), table
+    f = np.array([0.95, 0.97, 1.0, 1.03, 1.05])
+    key = parameter_specs(bus)[0][-1]
+    got = table.evaluate({key: f}, len(f))
+    names = [nm["name"] for nm in table.names]
+    j = names.index("flash supply-range U2")
+    # derived: the engine's own check at each rail
+    engine = ppbatch.build(bus, d, {key: f}, len(f), nominal=nominal)
+    ref = [c for c in engine.items if c.id == "supply-range"]
+    assert np.allclose(got["margin"][:, j], ref[1].margin, rtol=1e-12)
+    assert (got["status"][:, j] == ref[1].status).all()
+
+
+def test_a_receiver_that_never_switches_has_no_number_and_says_why():
+    from pinlib.present.report import format_text
+
+    d = load_design(DATA / "spi-cipo-never-high.toml")
+    res = check_design(d)
+    bus = res.bus("flash")
+    chk = [c for c in bus.checks if c.id == "cipo-setup"][0]
+    # the 3.3 V flash's VOH (3.1 V) never reaches the 5 V controller's VIH (3.5 V)
+    # (common practice, no source: class values of nor-flash-spi and mcu-5v)
+    level = next(ln for ln in bus.lines if ln.signal == "cipo").check("level-high")
+    assert level.status == "fail" and level.value < level.limit
+    assert chk.status == "fail" and chk.value is None and chk.margin is None
+    assert "never crosses" in chk.reason
+    js = chk.to_json()
+    assert js["value"] is None and js["margin"] is None and js["reason"] == chk.reason
+    assert bus.figures["cipo_setup_margin"].value is None
+    assert bus.figures["max_clock"].value is None
+    assert any(n.startswith("cipo_setup_margin: none") for n in bus.notes)
+    text = format_text(res)
+    assert not re.search(r"\bnan\b|\binf\b|∞", text, re.IGNORECASE)
+
+
+def test_a_clean_edge_has_no_undershoot():
+    from pinlib.physics import waveform as wf
+
+    # derived from float rounding: a falling edge v_from + swing·unit whose unit step
+    # ends one ulp above 1 dips a few 1e-16 V below ground
+    unit = np.array([0.0, 0.5, 1.0 + 2.0 ** -52])
+    v = 3.3 + (0.0 - 3.3) * unit
+    assert v.min() < 0 and -v.min() < 1e-15
+    assert wf.undershoot(v) == 0.0
+    assert wf.undershoot(np.array([3.3, -0.2, 0.0])) == pytest.approx(0.2, rel=1e-12)
+    res = check_design(_slow_edge()).bus("flash")
+    sclk = next(ln for ln in res.lines if ln.signal == "sclk")
+    assert sclk.figures["undershoot"].value == 0.0
+
+
+def test_a_line_far_longer_than_a_board_bus_says_so():
+    res = check_design(load_design(DATA / "spi-one-km.toml")).bus("link")
+    for ln in res.lines:
+        chk = ln.check("line-delay")
+        # common practice, no source: FR-4 microstrip carries a signal at about 5.5-6.5
+        # ns/m, so 1 km is some 6 µs one way, over a hundred periods of 20 MHz (50 ns)
+        assert 5e-6 < chk.value < 7e-6 and chk.value == ln.figures["trace_delay"].value
+        assert chk.limit == pytest.approx(50e-9, rel=1e-12)
+        assert chk.status == "warn" and chk.details["rule_of_thumb"] is True
+        assert "more than one bit in flight" in chk.source
+    short = check_design(_slow_edge()).bus("flash")
+    # a 5 cm trace (0.3 ns) is well inside the 50 ns period
+    assert all(ln.check("line-delay").status == "pass" for ln in short.lines)
