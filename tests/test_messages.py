@@ -325,6 +325,54 @@ def _(env):
     return _fails(lambda e: load_library(env=False).get("no-such-part"), env)
 
 
+# 13.14: a part whose file does not validate is named with its broken file, not "unknown"
+_BROKEN = PART.format(id="broken").replace('c_in = "8 pF"\n', "c_in = 10\n", 1)
+
+
+@case("PART_DOES_NOT_VALIDATE",
+      lambda: M.PART_DOES_NOT_VALIDATE.format(part="broken", problem=M.BARE_NUMBER))
+def _(env):
+    env.write("team/broken.toml", _BROKEN)
+    return _fails(lambda e: load_library([e.tmp / "team"], env=False, lazy=True).get("broken"),
+                  env)
+
+
+@case("NAMED_AT", M.NAMED_AT.format(where="d.toml:4, field 'bus[0].devices[1].part'"))
+def _(env):
+    env.write("team/broken.toml", _BROKEN)
+    lib = load_library([env.tmp / "team"], env=False, lazy=True)
+    return _fails(lambda e: lib.get("broken", file="d.toml", line=4,
+                                    field="bus[0].devices[1].part"), env).message
+
+
+@case("MORE_PROBLEMS", M.MORE_PROBLEMS.format(n=1))
+def _(env):
+    env.write("team/broken.toml", _BROKEN.replace('c_in = "8 pF"', "c_in = 9"))
+    lib = load_library([env.tmp / "team"], env=False, lazy=True)
+    return _fails(lambda e: lib.get("broken"), env).message
+
+
+@case("UNREAD_FILES", lambda: M.UNREAD_FILES.format(n=1, first="").rstrip())
+def _(env):
+    env.write("team/unread.toml", "format = \n")
+    lib = load_library([env.tmp / "team"], env=False, lazy=True)
+    return _fails(lambda e: lib.get("eeprom-i2k"), env).message
+
+
+@case("EXPECTED_FIELD_OF", lambda: M.EXPECTED_FIELD_OF.format(
+    format="design", fields="ref, part, role, supply, switched, series_resistor, side, "
+    "internal_pullups, pin, capacitance_tolerance"))
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS.replace('part = "eeprom-i2c"',
+                                                     'prat = "eeprom-i2c"')), env).message
+
+
+@case("FOLDER_NAMED_BY", M.FOLDER_NAMED_BY.format(source="PINLIB_LIBRARY"))
+def _(env):
+    env.monkeypatch.setenv("PINLIB_LIBRARY", str(env.tmp / "gone"))
+    return env.cli("parts", "list")
+
+
 # ---------------------------------------------------------------- library: schema and values
 def _pin_value(text: str) -> str:
     return PART.format(id="p").replace('c_in = "8 pF"\n', f"c_in = {text}\n", 1)
@@ -531,6 +579,37 @@ def _(env):
 def _(env):
     return _fails(lambda e: e.design(I2C_BUS, head=HEAD.replace(
         'title = "messages"\n', 'title = "messages"\nlibrary = ["no-such-folder"]\n')), env)
+
+
+@case("LOOKED_FOR", lambda: M.LOOKED_FOR.format(path="X"))
+def _(env):
+    got = _fails(lambda e: e.design(I2C_BUS, head=HEAD.replace(
+        'title = "messages"\n', 'title = "messages"\nlibrary = ["no-such-folder"]\n')), env)
+    assert got.hint == M.LOOKED_FOR.format(path=env.tmp / "no-such-folder")
+    return got.message.replace(str(env.tmp / "no-such-folder"), "X")
+
+
+@case("REFERENCE_TWO_PARTS",
+      lambda: M.REFERENCE_TWO_PARTS.format(part="mcu-5v", other="mcu-3v3"))
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS + SPI_BUS.replace(
+        'part = "mcu-3v3"', 'part = "mcu-5v"')), env)
+
+
+@case("REFERENCE_TWICE_ON_BUS")
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS.replace(
+        '{ ref = "U2", part = "eeprom-i2c" },\n',
+        '{ ref = "U2", part = "eeprom-i2c" },\n  { ref = "U2", part = "eeprom-i2c" },\n')), env)
+
+
+@case("ALSO_AT", lambda: M.ALSO_AT.format(where="X:17, field 'bus[0].devices[1].ref'",
+                                          part="eeprom-i2c"))
+def _(env):
+    got = _fails(lambda e: e.design(I2C_BUS.replace(
+        '{ ref = "U2", part = "eeprom-i2c" },\n',
+        '{ ref = "U2", part = "eeprom-i2c" },\n  { ref = "U2", part = "eeprom-i2c" },\n')), env)
+    return got.message.replace(str(env.tmp / "design.toml"), "X")
 
 
 @case("MICROSTRIP_NEEDS_HEIGHT")
@@ -807,6 +886,15 @@ def _(env):
     assert code == 1
     problems = json.loads(env.capsys.readouterr().out)["problems"]
     return next(p["message"] for p in problems if p["file"].endswith("child.toml"))
+
+
+@case("FIRST_PROBLEM", lambda: M.FIRST_PROBLEM.format(message=""))
+def _(env):
+    env.write("team/broken.toml", "this is not TOML\n")
+    env.write("design.toml", HEAD.replace('title = "messages"\n',
+                                          'title = "messages"\nlibrary = ["team"]\n') + I2C_BUS)
+    main(["check", str(env.tmp / "design.toml")])
+    return env.capsys.readouterr().err
 
 
 @case("SUBSTITUTION_FORM")

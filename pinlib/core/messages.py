@@ -66,11 +66,20 @@ THRESHOLD_NOT_FINITE = "not a finite threshold"
 NOT_A_PART_FILE = "not a part-class file"
 PART_NEEDS_ID = "a part file needs an id"
 LIBRARY_FOLDER_NOT_FOUND = "library folder not found"
+# folders.py (the hint of LIBRARY_FOLDER_NOT_FOUND when a command was told to read it)
+FOLDER_NAMED_BY = "{source} names it: correct or remove it there"
 DUPLICATE_TEAM_ID = "two team parts share one id"
 DUPLICATE_BUILTIN_ID = "two built-in parts share one id"
 EXTENDS_NOT_AN_ID = "extends names a part id"
 EXTENDS_CYCLE = "an extends cycle"
 EXTENDS_UNKNOWN = "extends a part that is not in the library"
+# the expected text of UNKNOWN_FIELD (pinlib/library/fields.py)
+EXPECTED_FIELD_OF = "a field of the {format} format here: {fields}"
+PART_DOES_NOT_VALIDATE = "part '{part}' does not load: {problem}"
+# hints of PART_DOES_NOT_VALIDATE and UNKNOWN_PART
+NAMED_AT = "the part is named at {where}"
+MORE_PROBLEMS = "{n} more problem(s): 'pinlib parts check' lists them"
+UNREAD_FILES = "{n} library file(s) could not be read, the first: {first}"
 # schema.py (pydantic validators: the loader removes pydantic's "Value error, ")
 EDGE_NEEDS_RISE_OR_FALL = "an edge point needs rise or fall (or both)"
 SUPPLY_MAX_BELOW_MIN = "supply max {max} is below min {min}"
@@ -106,6 +115,7 @@ NO_SUCH_PIN = "the part has no such pin"
 # ---------------------------------------------------------------- pinlib/model/design.py
 NOT_A_DESIGN = "not a design file"
 DESIGN_LIBRARY_MISSING = "a library folder named by the design does not exist"
+LOOKED_FOR = "looked for {path}"
 MICROSTRIP_NEEDS_HEIGHT = "a microstrip needs its height above the plane"
 STRIPLINE_NEEDS_SPACING = "a stripline needs spacing (plane to plane) or height (to each plane)"
 ABSTRACT_ON_BOARD = "an abstract class cannot be placed on a board"
@@ -117,6 +127,9 @@ UNKNOWN_GEOMETRY = "unknown geometry"
 GEOMETRY_OR_PER_LENGTH = "give a geometry or per-length values, not both"
 TRACE_NEEDS_GEOMETRY = "a trace needs a geometry or its capacitance per length"
 DUPLICATE_BUS_ID = "two buses share one id"
+REFERENCE_TWO_PARTS = "one reference designator names two parts ({part} here, {other} before)"
+REFERENCE_TWICE_ON_BUS = "one reference designator twice on one bus"
+ALSO_AT = "also at {where} as {part}"
 UNKNOWN_MODE = "unknown mode"
 BUS_HAS_NO_MODE = "a {protocol} bus has no mode"
 CLOCK_NOT_POSITIVE = "the clock must be above zero"
@@ -143,6 +156,7 @@ NO_FOLDER_FOR_NEW_PART = "no folder to write the new part into"
 PART_DOES_NOT_LOAD = "the part does not load"
 LIBRARY_HAS_PROBLEMS = ("{n} problem(s) in the library (run 'pinlib parts check'); parts "
                         "with problems are left out")
+FIRST_PROBLEM = "the first: {message}"
 SUBSTITUTION_FORM = "a substitution is REF=PART"
 SUBSTITUTED_TWICE = "one reference substituted twice"
 DESIGN_CHANGED_DURING_SWAP = ("the design file changed while it was being evaluated; "
@@ -356,6 +370,7 @@ MODULES = (
     "pinlib.library.schema",
     "pinlib.library.values",
     "pinlib.library.fields",
+    "pinlib.library.folders",
     "pinlib.library.record",
     "pinlib.model.design",
     "pinlib.cli.commands.parts",

@@ -97,6 +97,10 @@ def run(args) -> int:
     from pinlib.studies.snapshotfile import may_have_snapshot
 
     design = load_design(args.design, library_folders=args.library)
+    problems = design.library.problems  # files that could not be read, parts asked for
+    if problems:
+        print("pinlib: warning: " + M.LIBRARY_HAS_PROBLEMS.format(n=len(problems))
+              + "; " + M.FIRST_PROBLEM.format(message=problems[0].message), file=sys.stderr)
     if getattr(args, "seed", None) is not None and getattr(args, "monte_carlo", None) is None:
         from pinlib.core.errors import InputError
 

@@ -157,8 +157,10 @@ def _no_action(parser) -> int:
 # --- helpers ---------------------------------------------------------------------------
 
 def _load(args, extra=()):
+    from pinlib.library.folders import require_folders
     from pinlib.library.loader import load_library
 
+    require_folders(args.library)  # a folder it was told to read: exit 2, naming who said so
     return load_library(list(args.library) + list(extra))
 
 
