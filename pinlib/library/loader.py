@@ -175,11 +175,20 @@ def validate_part(merged: dict, origin: dict, files: dict[str, PartFile]) -> Par
             return None
 
         raise _Many(pydantic_errors(exc, origin_file=origin_file, locate=locate)) from None
-    return _with_origins(part, origin, own)
+    stamps = {pid: (str(pf.path), _file_provenance(pf.raw)) for pid, pf in files.items()}
+    return _with_origins(part, origin, own, stamps)
 
 
-def _with_origins(part: Part, origin: dict, own: str) -> Part:
-    """Stamp every Sourced value with the part id whose file set it."""
+def _file_provenance(raw: dict) -> dict:
+    prov = raw.get("provenance")
+    return {k: v for k, v in prov.items() if k in ("basis", "source") and isinstance(v, str)} \
+        if isinstance(prov, dict) else {}
+
+
+def _with_origins(part: Part, origin: dict, own: str, stamps: dict | None = None) -> Part:
+    """Stamp every Sourced value with the part id whose file set it, that file, and the
+    file's basis and source where the value states none of its own."""
+    stamps = stamps or {}
 
     # Only what holds a Sourced value is rebuilt; everything else is returned as it is
     # (a part holds hundreds of None fields, and copying each model was most of the load
@@ -188,7 +197,9 @@ def _with_origins(part: Part, origin: dict, own: str) -> Part:
         if obj is None or isinstance(obj, (str, bool, int, float)):
             return obj
         if isinstance(obj, Sourced):
-            return obj.with_origin(_origin_of(origin, path) or own)
+            pid = _origin_of(origin, path) or own
+            file, prov = stamps.get(pid, (None, None))
+            return obj.with_origin(pid, file=file, provenance=prov)
         if isinstance(obj, dict):
             out = {k: walk(v, path + (k,)) for k, v in obj.items()}
             return obj if all(out[k] is v for k, v in obj.items()) else out

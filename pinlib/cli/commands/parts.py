@@ -317,19 +317,15 @@ def _show_data(lib, pid) -> dict:
             attributes.append({"field": dotted(path), "value": item})
             continue
         origin = item.origin or pid
-        own_basis = item.basis
-        part_basis = None
-        if own_basis is None:
-            prov = lib.files[origin].raw.get("provenance") if origin in lib.files else None
-            part_basis = (prov or {}).get("basis") if isinstance(prov, dict) else None
-            part_basis = part_basis or part.provenance.basis
+        # the loader fills a basis or source the value does not state from the file that
+        # set it (the class it was inherited from, not this part)
         entry = {
             "field": dotted(path),
             "text": item.text or str(item.value),
             "unit": item.unit,
-            "basis": own_basis or part_basis,
-            "basis_from_part": own_basis is None,
-            "source": item.source,
+            "basis": item.basis or part.provenance.basis,
+            "basis_from_part": item.basis is None or "basis" in item.file_filled,
+            "source": None if "source" in item.file_filled else item.source,
             "typ": None if item.typ is None else (
                 str(item.typ) if isinstance(item.typ, Threshold) else item.typ),
             "derived": item.derived,
