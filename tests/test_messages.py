@@ -373,6 +373,59 @@ def _(env):
     return env.cli("parts", "list")
 
 
+# 13.15 and 13.19: cable classes and implausible values (pinlib.library.plausible)
+_CABLE = """\
+format = "pinlib.part/1"
+id = "c"
+title = "Invented cable"
+category = "cable"
+
+[line]
+"""
+
+
+@case("CABLE_NEEDS_TWO_OF_THREE")
+def _(env):
+    return _fails(lambda e: e.part(_CABLE + 'impedance = "100 Ω"\n'), env)
+
+
+def _disagreeing(env):
+    from pinlib.library.plausible import part_warnings
+
+    lib = env.part(_CABLE + 'capacitance = "0.8 pF/cm"\ndelay = "5 ns/m"\nimpedance = "100 Ω"\n')
+    (got,) = part_warnings(lib.get("c"), lib)
+    return got
+
+
+@case("LINE_VALUES_DISAGREE", lambda: M.LINE_VALUES_DISAGREE.format(
+    implied="8 ns/m", delay="5 ns/m", off="+60%"))
+def _(env):
+    return _disagreeing(env)
+
+
+@case("LINE_AGREEMENT_RULE", M.LINE_AGREEMENT_RULE.format(pct="5%"))
+def _(env):
+    return _disagreeing(env).message
+
+
+def _implausible(env):
+    from pinlib.library.plausible import part_warnings
+
+    lib = env.part(PART.format(id="p").replace('c_in = "8 pF"', 'c_in = "500 pF"', 1))
+    (got,) = part_warnings(lib.get("p"), lib)
+    return got
+
+
+@case("IMPLAUSIBLE_VALUE")
+def _(env):
+    return _implausible(env)
+
+
+@case("PLAUSIBLE_RANGE", M.PLAUSIBLE_RANGE.format(range="100 fF to 50 pF"))
+def _(env):
+    return _implausible(env).message
+
+
 # ---------------------------------------------------------------- library: schema and values
 def _pin_value(text: str) -> str:
     return PART.format(id="p").replace('c_in = "8 pF"\n', f"c_in = {text}\n", 1)

@@ -84,10 +84,19 @@ UNREAD_FILES = "{n} library file(s) could not be read, the first: {first}"
 EDGE_NEEDS_RISE_OR_FALL = "an edge point needs rise or fall (or both)"
 SUPPLY_MAX_BELOW_MIN = "supply max {max} is below min {min}"
 BRIDGE_BOTH_SIDES = "a bridging part describes both sides, [sides.a] and [sides.b]"
+CABLE_NEEDS_TWO_OF_THREE = ("a cable class gives its capacitance per length, or two of "
+                            "capacitance, delay and impedance (each above zero)")
 # values.py
 VALUE_TABLE_UNKNOWN_KEY = "unknown key '{key}' in a value table"
 VALUE_TABLE_WITHOUT_VALUE = "a value table without 'value'"
 SOURCE_NOT_TEXT = "a source must be text"
+# plausible.py (warnings: the part still loads)
+IMPLAUSIBLE_VALUE = "an implausible value for this field"
+PLAUSIBLE_RANGE = "{range} (common practice, no source)"
+LINE_VALUES_DISAGREE = ("capacitance, delay and impedance disagree: impedance x capacitance "
+                        "gives {implied} against the delay {delay} ({off})")
+LINE_AGREEMENT_RULE = ("impedance x capacitance within {pct} of the delay (lossless line: "
+                       "tpd = Z0 C')")
 # fields.py
 FIELD_PATH_NEEDED = "a field path is needed"
 VALUE_FIELD_NO_SUBFIELDS = "a value field has no sub-fields"
@@ -371,6 +380,7 @@ MODULES = (
     "pinlib.library.values",
     "pinlib.library.fields",
     "pinlib.library.folders",
+    "pinlib.library.plausible",
     "pinlib.library.record",
     "pinlib.model.design",
     "pinlib.cli.commands.parts",

@@ -470,7 +470,18 @@ def _run_record(args) -> int:
     typ = f", typ {args.typ}" if args.typ else ""
     print(f"recorded {'.'.join(keys)} = {args.value}{typ} ({args.basis}: {args.source}) "
           f"in {_rel(path)}")
+    _warn_implausible(_load(args), args.id, ".".join(keys))
     return 0
+
+
+def _warn_implausible(lib, pid, field=None) -> list:
+    """Print a warning for each implausible value of the part (only ``field`` if given)."""
+    from pinlib.library.plausible import part_warnings
+
+    found = [w for w in part_warnings(lib.get(pid), lib) if field is None or w.field == field]
+    for w in found:
+        print("pinlib: warning: " + w.message, file=sys.stderr)
+    return found
 
 
 # --- check -----------------------------------------------------------------------------
@@ -485,10 +496,14 @@ def _under(path, folder: Path) -> bool:
 
 def _run_check(args) -> int:
     from pinlib.core.errors import LibraryError
+    from pinlib.library.plausible import part_warnings
 
     if args.folder is None:
         lib = _load(args)
+        lib.resolve_all()
         problems = list(lib.problems)
+        for pid in lib.parts:  # implausible values, each listed with the file that set it
+            problems += part_warnings(lib.parts[pid], lib, own_only=True)
         scope = "the library"
         n_files = len(lib.files)
     else:
@@ -498,6 +513,8 @@ def _run_check(args) -> int:
         lib = _load(args, extra=[folder])
         root = folder.resolve()
         problems = [p for p in lib.problems if p.file and _under(p.file, root)]
+        problems += [w for pid in lib.parts if _under(lib.files[pid].path, root)
+                     for w in part_warnings(lib.parts[pid], lib, own_only=True)]
         # A part of the folder that does not load because of a file it extends.
         for pid, pf in lib.files.items():
             if pid in lib.parts or not _under(pf.path, root):
