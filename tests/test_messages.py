@@ -426,6 +426,88 @@ def _(env):
     return _implausible(env).message
 
 
+# 13.21: pinlib measured (pinlib/engines/bench.py and its command)
+_BENCH_BUS = I2C_BUS.replace('supply = "3.3 V"\n', 'supply = "3.3 V"\npullup = "2.2 kΩ"\n', 1)
+
+
+def _measured(env, rise, *extra):
+    path = env.write("design.toml", HEAD + _BENCH_BUS)
+    main(["measured", str(path), "--bus", "b", "--rise", rise, "--probe", "10pF", *extra])
+    return env.capsys.readouterr().out
+
+
+@case("NO_SUCH_BUS")
+def _(env):
+    from pinlib.engines.bench import compare_rise
+
+    return _fails(lambda e: compare_rise(e.design(I2C_BUS), "x", 1e-6, 1e-12), env)
+
+
+@case("BENCH_AGREES")
+def _(env):
+    from pinlib.engines.bench import compare_rise
+
+    model = compare_rise(env.design(_BENCH_BUS), "b", 1e-6, 1e-12).cb_model
+    rise = 2200 * (model + 10e-12) * 0.8472978603872037  # ln(0.7/0.3)
+    return _measured(env, f"{rise * 1e9:.4f} ns")
+
+
+@case("BENCH_ABOVE")
+def _(env):
+    return _measured(env, "500ns")
+
+
+@case("BENCH_BELOW")
+def _(env):
+    return _measured(env, "30ns")
+
+
+@case("REVISIT_PINS", lambda: M.REVISIT_PINS.split("{value}")[1])
+def _(env):
+    return _measured(env, "500ns")
+
+
+@case("REVISIT_TRACES", lambda: M.REVISIT_TRACES.split("{value}")[1])
+def _(env):
+    return _measured(env, "500ns")
+
+
+@case("REVISIT_CABLES", lambda: M.REVISIT_CABLES.split("{value}")[1])
+def _(env):
+    env.write("team/cab.toml", 'format = "pinlib.part/1"\nid = "cab"\ntitle = "c"\n'
+              'category = "cable"\n[line]\ncapacitance = "40 pF/m"\n')
+    bus = _BENCH_BUS.replace("devices = [", 'cables = [ { part = "cab", length = "30 cm" } ]\n'
+                             "devices = [")
+    path = env.write("design.toml", HEAD + bus)
+    main(["measured", str(path), "--bus", "b", "--rise", "500ns", "--probe", "10pF",
+          "--library", str(env.tmp / "team")])
+    return env.capsys.readouterr().out
+
+
+@case("REVISIT_EXTRA", lambda: M.REVISIT_EXTRA.format(value="0 pF"))
+def _(env):
+    return _measured(env, "500ns")
+
+
+@case("REVISIT_PULLUP", lambda: M.REVISIT_PULLUP.format(rp="2.2 kΩ"))
+def _(env):
+    return _measured(env, "500ns")
+
+
+@case("REVISIT_PROBE")
+def _(env):
+    return _measured(env, "30ns")
+
+
+@case("LEVELS_FORM")
+def _(env):
+    path = env.write("design.toml", HEAD + _BENCH_BUS)
+    with pytest.raises(SystemExit):
+        main(["measured", str(path), "--bus", "b", "--rise", "1us", "--probe", "1pF",
+              "--levels", "30"])
+    return env.capsys.readouterr().err
+
+
 # ---------------------------------------------------------------- library: schema and values
 def _pin_value(text: str) -> str:
     return PART.format(id="p").replace('c_in = "8 pF"\n', f"c_in = {text}\n", 1)

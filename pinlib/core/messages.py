@@ -274,6 +274,26 @@ ZERO_LENGTH_NOT_SCALED = "a line of zero length cannot be scaled"
 NO_SUCH_PERIPHERAL = "no such peripheral on the bus"
 NO_T_VALID_TO_VARY = "the peripheral records no t_valid to vary"
 
+# pinlib/engines/bench.py (a rise time measured on the board against the model)
+NO_SUCH_BUS = "no bus of that id in the design"
+BENCH_AGREES = "the measurement agrees with the model"
+BENCH_ABOVE = ("the board holds more capacitance than the model: revisit, most likely "
+               "first,")
+BENCH_BELOW = ("the board holds less capacitance than the model (the model takes every "
+               "contribution at its maximum): revisit, largest first,")
+REVISIT_PINS = ("pins {value}: each part's c_in (the datasheet's maximum, or its typical "
+                "value on a real board) and parts on the line the design does not list")
+REVISIT_TRACES = "traces {value}: the trace lengths and the geometry (width, height, er)"
+REVISIT_CABLES = "cables {value}: each cable class's capacitance per length and its length"
+REVISIT_EXTRA = ("extra {value}: extra_capacitance (connectors, ESD parts, test points not "
+                 "in the design)")
+REVISIT_PULLUP = ("the pull-up {rp} on the line: the fitted resistor's value and any pull-ups "
+                  "inside parts (Cb from a reading scales as 1/Rp)")
+REVISIT_PROBE = ("the measurement: the probe's capacitance, its ground lead, and the levels "
+                 "the rise was read between")
+# the command's measuring levels
+LEVELS_FORM = "measuring levels are two numbers, low,high"
+
 # ---------------------------------------------------------------- studies
 # pinlib/studies/compare.py
 NO_SNAPSHOT_PLACE = "the design was not loaded from a file, so it has no snapshot place"
@@ -399,6 +419,8 @@ MODULES = (
     "pinlib.engines.pushline",
     "pinlib.engines.pushpull",
     "pinlib.engines.spi",
+    "pinlib.engines.bench",
+    "pinlib.cli.commands.measured",
     "pinlib.studies.compare",
     "pinlib.studies.candidates",
     "pinlib.studies.whatif",
