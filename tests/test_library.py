@@ -579,3 +579,20 @@ def _checks(node):
     elif isinstance(node, list):
         for v in node:
             yield from _checks(v)
+
+
+def test_parts_show_gives_inherited_values_the_class_s_basis(tmp_path, monkeypatch, capsys):
+    # 13.5: adc-spi's pins.sclk.c_in states a source but no basis; the class file's basis
+    # (generic) is its basis, not the team part's (datasheet)
+    from pinlib.cli import main
+
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    (tmp_path / "adc-acme.toml").write_text(TEAM_ADC, encoding="utf-8")
+    assert main(["parts", "show", "adc-acme", "--library", str(tmp_path), "--json"]) == 0
+    values = {v["field"]: v for v in json.loads(capsys.readouterr().out)["values"]}
+    c_in = values["pins.sclk.c_in"]
+    assert (c_in["basis"], c_in["origin"], c_in["basis_from_part"]) == ("generic", "adc-spi", True)
+    abs_max = values["pins.sclk.abs_max"]
+    assert (abs_max["basis"], abs_max["source"]) == (
+        "generic", "typical of the class (common practice)")
+    assert values["timing.f_max"]["source"] == "datasheet rev B"

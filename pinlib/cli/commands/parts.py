@@ -323,9 +323,9 @@ def _show_data(lib, pid) -> dict:
             "field": dotted(path),
             "text": item.text or str(item.value),
             "unit": item.unit,
-            "basis": item.basis or part.provenance.basis,
+            "basis": item.basis or _file_basis(lib, origin) or part.provenance.basis,
             "basis_from_part": item.basis is None or "basis" in item.file_filled,
-            "source": None if "source" in item.file_filled else item.source,
+            "source": item.source,
             "typ": None if item.typ is None else (
                 str(item.typ) if isinstance(item.typ, Threshold) else item.typ),
             "derived": item.derived,
@@ -360,6 +360,12 @@ def _show_data(lib, pid) -> dict:
         "attributes": attributes,
         "values": values,
     }
+
+
+def _file_basis(lib, pid) -> str | None:
+    """The basis of a part file's own ``provenance`` table (None when it has none)."""
+    prov = lib.files[pid].raw.get("provenance") if pid in lib.files else None
+    return prov.get("basis") if isinstance(prov, dict) else None
 
 
 def _typ_text(entry) -> str:
@@ -424,7 +430,9 @@ def _run_show(args) -> int:
     else:
         print("(no values)")
     print()
-    print("basis '(part)': the value has none of its own and takes its part's provenance.")
+    print("basis '(part)': the value states no basis of its own and takes the provenance of "
+          "the file that set it (this part's, or the class's it inherits from); so does its "
+          "source when it states none.")
     return 0
 
 
