@@ -124,3 +124,139 @@ def test_fixed_values_parse_to_si(tmp_path):
         'supply = "3.3 V"', 'supply = "3.3 V"\npullup = "2.2 pF"')
     with pytest.raises(DesignError, match="where a resistance belongs"):
         load_design(write(tmp_path, body))
+
+
+# ---------------------------------------------------------------- issue 13, items 14-18
+def test_part_whose_file_does_not_validate_names_the_broken_file(tmp_path, capsys):
+    # 13.14: `c_in = 10` without a unit is the error, at the part file's line and field,
+    # not "unknown part ... closest: ..."
+    team = tmp_path / "team"
+    team.mkdir()
+    (team / "adc.toml").write_text(
+        (PARTS / "t-target.toml").read_text(encoding="utf-8")
+        .replace('id = "t-target"', 'id = "adc-team"'), encoding="utf-8")
+    text = (team / "adc.toml").read_text(encoding="utf-8")
+    first = text.index("c_in = ")
+    end = text.index("\n", first)
+    (team / "adc.toml").write_text(text[:first] + "c_in = 10" + text[end:], encoding="utf-8")
+    line = text[:first].count("\n") + 1
+    body = ONE_BUS.replace("PART", "adc-team")
+    path = tmp_path / "bad.toml"
+    path.write_text(HEAD.replace("]\n", f', "{team.as_posix()}"]\n', 1) + body,
+                    encoding="utf-8")
+    assert main(["check", str(path)]) == 2
+    err = capsys.readouterr().err
+    assert f"{team / 'adc.toml'}:{line}" in err
+    assert "part 'adc-team' does not load: a bare number has no unit" in err
+    assert "unknown part" not in err
+    assert f"named at {path}:11, field 'bus[0].devices[1].part'" in err
+
+
+DUPLICATES = """
+[[bus]]
+id = "i"
+protocol = "i2c"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "t-ctrl-3v3", role = "controller" },
+  { ref = "U2", part = "t-target" },
+  { ref = "U2", part = "OTHER" },
+]
+"""
+
+
+@pytest.mark.parametrize(("other", "words"), [
+    ("t-target", ["one reference designator twice on one bus", "'U2'",
+                  "also at {path}:11, field 'bus[0].devices[1].ref' as t-target"]),
+    ("t-target-6ma", ["one reference designator names two parts (t-target-6ma here, t-target "
+                      "before)", "also at {path}:11"]),
+])
+def test_duplicate_reference_names_both_places(tmp_path, other, words):
+    # 13.16: U2 twice on one bus is an error naming the two lines
+    path = write(tmp_path, DUPLICATES.replace("OTHER", other))
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    assert info.value.line == 12 and info.value.field == "bus[0].devices[2].ref"
+    for w in words:
+        assert w.format(path=path) in info.value.message
+
+
+def test_one_chip_on_two_buses_is_one_part(tmp_path):
+    # 13.16: U1 on an I2C and an SPI bus as one part is one chip on two buses (allowed);
+    # as two parts it is an error naming both places
+    spi = """
+[[bus]]
+id = "s"
+protocol = "spi"
+clock = "10 MHz"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "CTRL", role = "controller" },
+  { ref = "U7", part = "nor-flash-spi" },
+]
+lines.sclk = { length = "3 cm", capacitance = "1 pF/cm" }
+"""
+    body = ONE_BUS.replace("PART", "t-target").replace("t-ctrl-3v3", "mcu-3v3")
+    d = load_design(write(tmp_path, body + spi.replace("CTRL", "mcu-3v3")))
+    assert [b.devices[0].ref for b in d.buses] == ["U1", "U1"]
+    with pytest.raises(DesignError) as info:
+        load_design(write(tmp_path, body + spi.replace("CTRL", "mcu-5v")))
+    assert "names two parts (mcu-5v here, mcu-3v3 before)" in info.value.message
+    assert f"also at {tmp_path / 'bad.toml'}:10, field 'bus[0].devices[0].ref'" in \
+        info.value.message
+
+
+def test_bridge_once_per_side_is_not_a_duplicate(tmp_path):
+    d = load_design(write(tmp_path, SEGMENTS.replace(
+        '{ ref = "U3", part = "t-sensor-1v8" },',
+        '{ ref = "U3", part = "t-sensor-1v8" },\n  { ref = "Q1", part = "t-fet-translator", '
+        'side = "a" },')))
+    assert sorted(dev.side for dev in d.buses[0].devices if dev.ref == "Q1") == ["a", "b"]
+
+
+@pytest.mark.parametrize(("body", "field", "closest"), [
+    (ONE_BUS.replace("PART", "t-target").replace('supply = "3.3 V"', 'suply = "3.3 V"'),
+     "bus[0].suply", "supply"),
+    (ONE_BUS.replace('part = "PART"', 'prat = "t-target"'), "bus[0].devices[1].prat", "part"),
+])
+def test_misspelt_design_key_names_the_design_fields(tmp_path, body, field, closest):
+    # 13.17: the design format's fields at that place, and the closest one
+    with pytest.raises(DesignError) as info:
+        load_design(write(tmp_path, body))
+    msg = info.value.message
+    assert info.value.field == field
+    assert "a field of the design format here:" in msg and "part format" not in msg
+    assert msg.endswith(f"closest: {closest}")
+
+
+def test_misspelt_title_is_named_before_the_missing_title(tmp_path):
+    path = tmp_path / "d.toml"
+    path.write_text(HEAD.replace("title =", "titel =") + ONE_BUS.replace("PART", "t-target"),
+                    encoding="utf-8")
+    with pytest.raises(DesignError, match="unknown field.*closest: title"):
+        load_design(path)
+
+
+def test_missing_library_folder_blames_its_source(tmp_path, monkeypatch, capsys):
+    # 13.18: the design's own line, --library or PINLIB_LIBRARY, whichever named it; exit 2
+    from pinlib.core.errors import InputError
+
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    good = write(tmp_path, ONE_BUS.replace("PART", "t-target"))
+    with pytest.raises(InputError) as info:
+        load_design(good, library_folders=[tmp_path / "gone"])
+    assert info.value.field == "--library" and info.value.line is None
+    monkeypatch.setenv("PINLIB_LIBRARY", str(tmp_path / "away"))
+    assert main(["check", str(good)]) == 2
+    assert "field 'PINLIB_LIBRARY': library folder not found" in capsys.readouterr().err
+    assert main(["parts", "list"]) == 2
+    assert "PINLIB_LIBRARY names it" in capsys.readouterr().err
+    monkeypatch.delenv("PINLIB_LIBRARY")
+    assert main(["parts", "list", "--library", str(tmp_path / "gone")]) == 2
+    assert "field '--library': library folder not found" in capsys.readouterr().err
+    own = tmp_path / "own.toml"
+    own.write_text(HEAD.replace("library = [", 'library = ["nowhere", ')
+                   + ONE_BUS.replace("PART", "t-target"), encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(own)
+    assert (info.value.line, info.value.field) == (3, "library[0]")

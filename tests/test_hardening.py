@@ -445,8 +445,9 @@ def test_pin_capacitance_edge_values_in_a_part_file(value, problem, tmp_path, mo
     (err,) = lib.problems
     assert (err.problem, err.file, err.field, err.line) == (problem, str(part), "pins.sda.c_in",
                                                             9)
-    assert isinstance(got, PinlibError) and got.field == "bus[0].devices[1].part"
-    assert problem in got.message  # the design's error passes on the part file's
+    # the error is the part file's (its file, line and field), naming the design's place
+    assert isinstance(got, PinlibError) and (got.file, got.field) == (str(part), "pins.sda.c_in")
+    assert problem in got.message and "field 'bus[0].devices[1].part'" in got.message
 
 
 

@@ -503,3 +503,96 @@ def test_fuzz_mutated_part_files(builtin, mutations, child):
     lib = _fuzz_load({"x.toml": "\n".join(lines) + "\n", "y.toml": BASE.replace('"base"', '"y"')})
     for p in lib.parts.values():
         assert p.id in ("base", "x", "y")
+
+
+# ---------------------------------------------------------------- issue 13, item 5
+TEAM_ADC = """\
+format = "pinlib.part/1"
+id = "adc-acme"
+title = "Invented ADC (demo data)"
+category = "converter"
+extends = "adc-spi"
+provenance = { basis = "datasheet", source = "datasheet rev B" }
+
+[timing]
+f_max = "20 MHz"
+"""
+
+
+def test_inherited_value_names_the_file_basis_and_source_it_came_from(tmp_path, monkeypatch):
+    # 13.5: a value inherited from a generic class is that class's, not the team part's
+    # "datasheet rev B"; the team part's own value keeps the team part's provenance
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    (tmp_path / "adc-acme.toml").write_text(TEAM_ADC, encoding="utf-8")
+    lib = load_library([tmp_path])
+    part = lib.get("adc-acme")
+    abs_max = part.pins["sclk"].abs_max
+    assert (abs_max.origin, abs_max.basis, abs_max.source) == (
+        "adc-spi", "generic", "typical of the class (common practice)")
+    assert abs_max.origin_file == str(lib.path_of("adc-spi"))
+    assert abs_max.file_filled == ("basis", "source")
+    assert abs_max.provenance_text() == (
+        "adc-spi (adc-spi.toml), generic: typical of the class (common practice)")
+    own = part.timing.f_max
+    assert (own.origin, own.basis, own.source) == ("adc-acme", "datasheet", "datasheet rev B")
+    assert own.origin_file == str(tmp_path / "adc-acme.toml")
+
+
+def test_check_sources_of_inherited_values_are_the_class_s(tmp_path, monkeypatch):
+    from pinlib.engines.dispatch import check_design
+    from pinlib.model.design import load_design
+
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    (tmp_path / "adc-acme.toml").write_text(TEAM_ADC, encoding="utf-8")
+    design = tmp_path / "d.toml"
+    design.write_text("""\
+format = "pinlib.design/1"
+title = "provenance (invented)"
+
+[[bus]]
+id = "s"
+protocol = "spi"
+clock = "10 MHz"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U7", part = "adc-acme" },
+]
+lines.sclk = { length = "3 cm", capacitance = "1 pF/cm" }
+lines.copi = { length = "3 cm", capacitance = "1 pF/cm" }
+lines.cipo = { length = "3 cm", capacitance = "1 pF/cm" }
+""", encoding="utf-8")
+    result = check_design(load_design(design, library_folders=[tmp_path]))
+    sources = [c["source"] for c in _checks(result.to_json())]
+    inherited = [s for s in sources if s.startswith("adc-spi abs_max")]
+    assert inherited and all(s == "adc-spi abs_max: typical of the class (common practice)"
+                             for s in inherited)
+    assert not any("adc-spi" in s and "rev B" in s for s in sources)
+
+
+def _checks(node):
+    if isinstance(node, dict):
+        if "source" in node and "status" in node:
+            yield node
+        for v in node.values():
+            yield from _checks(v)
+    elif isinstance(node, list):
+        for v in node:
+            yield from _checks(v)
+
+
+def test_parts_show_gives_inherited_values_the_class_s_basis(tmp_path, monkeypatch, capsys):
+    # 13.5: adc-spi's pins.sclk.c_in states a source but no basis; the class file's basis
+    # (generic) is its basis, not the team part's (datasheet)
+    from pinlib.cli import main
+
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    (tmp_path / "adc-acme.toml").write_text(TEAM_ADC, encoding="utf-8")
+    assert main(["parts", "show", "adc-acme", "--library", str(tmp_path), "--json"]) == 0
+    values = {v["field"]: v for v in json.loads(capsys.readouterr().out)["values"]}
+    c_in = values["pins.sclk.c_in"]
+    assert (c_in["basis"], c_in["origin"], c_in["basis_from_part"]) == ("generic", "adc-spi", True)
+    abs_max = values["pins.sclk.abs_max"]
+    assert (abs_max["basis"], abs_max["source"]) == (
+        "generic", "typical of the class (common practice)")
+    assert values["timing.f_max"]["source"] == "datasheet rev B"

@@ -325,6 +325,189 @@ def _(env):
     return _fails(lambda e: load_library(env=False).get("no-such-part"), env)
 
 
+# 13.14: a part whose file does not validate is named with its broken file, not "unknown"
+_BROKEN = PART.format(id="broken").replace('c_in = "8 pF"\n', "c_in = 10\n", 1)
+
+
+@case("PART_DOES_NOT_VALIDATE",
+      lambda: M.PART_DOES_NOT_VALIDATE.format(part="broken", problem=M.BARE_NUMBER))
+def _(env):
+    env.write("team/broken.toml", _BROKEN)
+    return _fails(lambda e: load_library([e.tmp / "team"], env=False, lazy=True).get("broken"),
+                  env)
+
+
+@case("NAMED_AT", M.NAMED_AT.format(where="d.toml:4, field 'bus[0].devices[1].part'"))
+def _(env):
+    env.write("team/broken.toml", _BROKEN)
+    lib = load_library([env.tmp / "team"], env=False, lazy=True)
+    return _fails(lambda e: lib.get("broken", file="d.toml", line=4,
+                                    field="bus[0].devices[1].part"), env).message
+
+
+@case("MORE_PROBLEMS", M.MORE_PROBLEMS.format(n=1))
+def _(env):
+    env.write("team/broken.toml", _BROKEN.replace('c_in = "8 pF"', "c_in = 9"))
+    lib = load_library([env.tmp / "team"], env=False, lazy=True)
+    return _fails(lambda e: lib.get("broken"), env).message
+
+
+@case("UNREAD_FILES", lambda: M.UNREAD_FILES.format(n=1, first="").rstrip())
+def _(env):
+    env.write("team/unread.toml", "format = \n")
+    lib = load_library([env.tmp / "team"], env=False, lazy=True)
+    return _fails(lambda e: lib.get("eeprom-i2k"), env).message
+
+
+@case("EXPECTED_FIELD_OF", lambda: M.EXPECTED_FIELD_OF.format(
+    format="design", fields="ref, part, role, supply, switched, series_resistor, side, "
+    "internal_pullups, pin, capacitance_tolerance"))
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS.replace('part = "eeprom-i2c"',
+                                                     'prat = "eeprom-i2c"')), env).message
+
+
+@case("FOLDER_NAMED_BY", M.FOLDER_NAMED_BY.format(source="PINLIB_LIBRARY"))
+def _(env):
+    env.monkeypatch.setenv("PINLIB_LIBRARY", str(env.tmp / "gone"))
+    return env.cli("parts", "list")
+
+
+# 13.15 and 13.19: cable classes and implausible values (pinlib.library.plausible)
+_CABLE = """\
+format = "pinlib.part/1"
+id = "c"
+title = "Invented cable"
+category = "cable"
+
+[line]
+"""
+
+
+@case("CABLE_NEEDS_TWO_OF_THREE")
+def _(env):
+    return _fails(lambda e: e.part(_CABLE + 'impedance = "100 Ω"\n'), env)
+
+
+def _disagreeing(env):
+    from pinlib.library.plausible import part_warnings
+
+    lib = env.part(_CABLE + 'capacitance = "0.8 pF/cm"\ndelay = "5 ns/m"\nimpedance = "100 Ω"\n')
+    (got,) = part_warnings(lib.get("c"), lib)
+    return got
+
+
+@case("LINE_VALUES_DISAGREE", lambda: M.LINE_VALUES_DISAGREE.format(
+    implied="8 ns/m", delay="5 ns/m", off="+60%"))
+def _(env):
+    return _disagreeing(env)
+
+
+@case("LINE_AGREEMENT_RULE", M.LINE_AGREEMENT_RULE.format(pct="5%"))
+def _(env):
+    return _disagreeing(env).message
+
+
+def _implausible(env):
+    from pinlib.library.plausible import part_warnings
+
+    lib = env.part(PART.format(id="p").replace('c_in = "8 pF"', 'c_in = "500 pF"', 1))
+    (got,) = part_warnings(lib.get("p"), lib)
+    return got
+
+
+@case("IMPLAUSIBLE_VALUE")
+def _(env):
+    return _implausible(env)
+
+
+@case("PLAUSIBLE_RANGE", M.PLAUSIBLE_RANGE.format(range="100 fF to 50 pF"))
+def _(env):
+    return _implausible(env).message
+
+
+# 13.21: pinlib measured (pinlib/engines/bench.py and its command)
+_BENCH_BUS = I2C_BUS.replace('supply = "3.3 V"\n', 'supply = "3.3 V"\npullup = "2.2 kΩ"\n', 1)
+
+
+def _measured(env, rise, *extra):
+    path = env.write("design.toml", HEAD + _BENCH_BUS)
+    main(["measured", str(path), "--bus", "b", "--rise", rise, "--probe", "10pF", *extra])
+    return env.capsys.readouterr().out
+
+
+@case("NO_SUCH_BUS")
+def _(env):
+    from pinlib.engines.bench import compare_rise
+
+    return _fails(lambda e: compare_rise(e.design(I2C_BUS), "x", 1e-6, 1e-12), env)
+
+
+@case("BENCH_AGREES")
+def _(env):
+    from pinlib.engines.bench import compare_rise
+
+    model = compare_rise(env.design(_BENCH_BUS), "b", 1e-6, 1e-12).cb_model
+    rise = 2200 * (model + 10e-12) * 0.8472978603872037  # ln(0.7/0.3)
+    return _measured(env, f"{rise * 1e9:.4f} ns")
+
+
+@case("BENCH_ABOVE")
+def _(env):
+    return _measured(env, "500ns")
+
+
+@case("BENCH_BELOW")
+def _(env):
+    return _measured(env, "30ns")
+
+
+@case("REVISIT_PINS", lambda: M.REVISIT_PINS.split("{value}")[1])
+def _(env):
+    return _measured(env, "500ns")
+
+
+@case("REVISIT_TRACES", lambda: M.REVISIT_TRACES.split("{value}")[1])
+def _(env):
+    return _measured(env, "500ns")
+
+
+@case("REVISIT_CABLES", lambda: M.REVISIT_CABLES.split("{value}")[1])
+def _(env):
+    env.write("team/cab.toml", 'format = "pinlib.part/1"\nid = "cab"\ntitle = "c"\n'
+              'category = "cable"\n[line]\ncapacitance = "40 pF/m"\n')
+    bus = _BENCH_BUS.replace("devices = [", 'cables = [ { part = "cab", length = "30 cm" } ]\n'
+                             "devices = [")
+    path = env.write("design.toml", HEAD + bus)
+    main(["measured", str(path), "--bus", "b", "--rise", "500ns", "--probe", "10pF",
+          "--library", str(env.tmp / "team")])
+    return env.capsys.readouterr().out
+
+
+@case("REVISIT_EXTRA", lambda: M.REVISIT_EXTRA.format(value="0 pF"))
+def _(env):
+    return _measured(env, "500ns")
+
+
+@case("REVISIT_PULLUP", lambda: M.REVISIT_PULLUP.format(rp="2.2 kΩ"))
+def _(env):
+    return _measured(env, "500ns")
+
+
+@case("REVISIT_PROBE")
+def _(env):
+    return _measured(env, "30ns")
+
+
+@case("LEVELS_FORM")
+def _(env):
+    path = env.write("design.toml", HEAD + _BENCH_BUS)
+    with pytest.raises(SystemExit):
+        main(["measured", str(path), "--bus", "b", "--rise", "1us", "--probe", "1pF",
+              "--levels", "30"])
+    return env.capsys.readouterr().err
+
+
 # ---------------------------------------------------------------- library: schema and values
 def _pin_value(text: str) -> str:
     return PART.format(id="p").replace('c_in = "8 pF"\n', f"c_in = {text}\n", 1)
@@ -531,6 +714,37 @@ def _(env):
 def _(env):
     return _fails(lambda e: e.design(I2C_BUS, head=HEAD.replace(
         'title = "messages"\n', 'title = "messages"\nlibrary = ["no-such-folder"]\n')), env)
+
+
+@case("LOOKED_FOR", lambda: M.LOOKED_FOR.format(path="X"))
+def _(env):
+    got = _fails(lambda e: e.design(I2C_BUS, head=HEAD.replace(
+        'title = "messages"\n', 'title = "messages"\nlibrary = ["no-such-folder"]\n')), env)
+    assert got.hint == M.LOOKED_FOR.format(path=env.tmp / "no-such-folder")
+    return got.message.replace(str(env.tmp / "no-such-folder"), "X")
+
+
+@case("REFERENCE_TWO_PARTS",
+      lambda: M.REFERENCE_TWO_PARTS.format(part="mcu-5v", other="mcu-3v3"))
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS + SPI_BUS.replace(
+        'part = "mcu-3v3"', 'part = "mcu-5v"')), env)
+
+
+@case("REFERENCE_TWICE_ON_BUS")
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS.replace(
+        '{ ref = "U2", part = "eeprom-i2c" },\n',
+        '{ ref = "U2", part = "eeprom-i2c" },\n  { ref = "U2", part = "eeprom-i2c" },\n')), env)
+
+
+@case("ALSO_AT", lambda: M.ALSO_AT.format(where="X:17, field 'bus[0].devices[1].ref'",
+                                          part="eeprom-i2c"))
+def _(env):
+    got = _fails(lambda e: e.design(I2C_BUS.replace(
+        '{ ref = "U2", part = "eeprom-i2c" },\n',
+        '{ ref = "U2", part = "eeprom-i2c" },\n  { ref = "U2", part = "eeprom-i2c" },\n')), env)
+    return got.message.replace(str(env.tmp / "design.toml"), "X")
 
 
 @case("MICROSTRIP_NEEDS_HEIGHT")
@@ -807,6 +1021,15 @@ def _(env):
     assert code == 1
     problems = json.loads(env.capsys.readouterr().out)["problems"]
     return next(p["message"] for p in problems if p["file"].endswith("child.toml"))
+
+
+@case("FIRST_PROBLEM", lambda: M.FIRST_PROBLEM.format(message=""))
+def _(env):
+    env.write("team/broken.toml", "this is not TOML\n")
+    env.write("design.toml", HEAD.replace('title = "messages"\n',
+                                          'title = "messages"\nlibrary = ["team"]\n') + I2C_BUS)
+    main(["check", str(env.tmp / "design.toml")])
+    return env.capsys.readouterr().err
 
 
 @case("SUBSTITUTION_FORM")

@@ -557,10 +557,10 @@ id = "spi"
 protocol = "spi"
 clock = "10 MHz"
 supply = "3.3 V"
-devices = [{ ref = "U1", part = "mcu-3v3", role = "controller" }]
+devices = [{ ref = "U9", part = "mcu-3v3", role = "controller" }]
 lines.sclk = { length = "5 cm", capacitance = "1 pF/cm" }
 """
-    d = design(tmp_path, body)
+    d = design(tmp_path, body)  # U9: U1 is another part on bus b (one ref, one part)
     result = check_design(d)
     assert [b.id for b in result.buses] == ["b", "spi"]
     assert result.bus("b").protocol == "i2c" and "pullup" in result.bus("b").figures

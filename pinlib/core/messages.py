@@ -66,19 +66,37 @@ THRESHOLD_NOT_FINITE = "not a finite threshold"
 NOT_A_PART_FILE = "not a part-class file"
 PART_NEEDS_ID = "a part file needs an id"
 LIBRARY_FOLDER_NOT_FOUND = "library folder not found"
+# folders.py (the hint of LIBRARY_FOLDER_NOT_FOUND when a command was told to read it)
+FOLDER_NAMED_BY = "{source} names it: correct or remove it there"
 DUPLICATE_TEAM_ID = "two team parts share one id"
 DUPLICATE_BUILTIN_ID = "two built-in parts share one id"
 EXTENDS_NOT_AN_ID = "extends names a part id"
 EXTENDS_CYCLE = "an extends cycle"
 EXTENDS_UNKNOWN = "extends a part that is not in the library"
+# the expected text of UNKNOWN_FIELD (pinlib/library/fields.py)
+EXPECTED_FIELD_OF = "a field of the {format} format here: {fields}"
+PART_DOES_NOT_VALIDATE = "part '{part}' does not load: {problem}"
+# hints of PART_DOES_NOT_VALIDATE and UNKNOWN_PART
+NAMED_AT = "the part is named at {where}"
+MORE_PROBLEMS = "{n} more problem(s): 'pinlib parts check' lists them"
+UNREAD_FILES = "{n} library file(s) could not be read, the first: {first}"
 # schema.py (pydantic validators: the loader removes pydantic's "Value error, ")
 EDGE_NEEDS_RISE_OR_FALL = "an edge point needs rise or fall (or both)"
 SUPPLY_MAX_BELOW_MIN = "supply max {max} is below min {min}"
 BRIDGE_BOTH_SIDES = "a bridging part describes both sides, [sides.a] and [sides.b]"
+CABLE_NEEDS_TWO_OF_THREE = ("a cable class gives its capacitance per length, or two of "
+                            "capacitance, delay and impedance (each above zero)")
 # values.py
 VALUE_TABLE_UNKNOWN_KEY = "unknown key '{key}' in a value table"
 VALUE_TABLE_WITHOUT_VALUE = "a value table without 'value'"
 SOURCE_NOT_TEXT = "a source must be text"
+# plausible.py (warnings: the part still loads)
+IMPLAUSIBLE_VALUE = "an implausible value for this field"
+PLAUSIBLE_RANGE = "{range} (common practice, no source)"
+LINE_VALUES_DISAGREE = ("capacitance, delay and impedance disagree: impedance x capacitance "
+                        "gives {implied} against the delay {delay} ({off})")
+LINE_AGREEMENT_RULE = ("impedance x capacitance within {pct} of the delay (lossless line: "
+                       "tpd = Z0 C')")
 # fields.py
 FIELD_PATH_NEEDED = "a field path is needed"
 VALUE_FIELD_NO_SUBFIELDS = "a value field has no sub-fields"
@@ -106,6 +124,7 @@ NO_SUCH_PIN = "the part has no such pin"
 # ---------------------------------------------------------------- pinlib/model/design.py
 NOT_A_DESIGN = "not a design file"
 DESIGN_LIBRARY_MISSING = "a library folder named by the design does not exist"
+LOOKED_FOR = "looked for {path}"
 MICROSTRIP_NEEDS_HEIGHT = "a microstrip needs its height above the plane"
 STRIPLINE_NEEDS_SPACING = "a stripline needs spacing (plane to plane) or height (to each plane)"
 ABSTRACT_ON_BOARD = "an abstract class cannot be placed on a board"
@@ -117,6 +136,9 @@ UNKNOWN_GEOMETRY = "unknown geometry"
 GEOMETRY_OR_PER_LENGTH = "give a geometry or per-length values, not both"
 TRACE_NEEDS_GEOMETRY = "a trace needs a geometry or its capacitance per length"
 DUPLICATE_BUS_ID = "two buses share one id"
+REFERENCE_TWO_PARTS = "one reference designator names two parts ({part} here, {other} before)"
+REFERENCE_TWICE_ON_BUS = "one reference designator twice on one bus"
+ALSO_AT = "also at {where} as {part}"
 UNKNOWN_MODE = "unknown mode"
 BUS_HAS_NO_MODE = "a {protocol} bus has no mode"
 CLOCK_NOT_POSITIVE = "the clock must be above zero"
@@ -143,6 +165,7 @@ NO_FOLDER_FOR_NEW_PART = "no folder to write the new part into"
 PART_DOES_NOT_LOAD = "the part does not load"
 LIBRARY_HAS_PROBLEMS = ("{n} problem(s) in the library (run 'pinlib parts check'); parts "
                         "with problems are left out")
+FIRST_PROBLEM = "the first: {message}"
 SUBSTITUTION_FORM = "a substitution is REF=PART"
 SUBSTITUTED_TWICE = "one reference substituted twice"
 DESIGN_CHANGED_DURING_SWAP = ("the design file changed while it was being evaluated; "
@@ -251,6 +274,26 @@ ZERO_LENGTH_NOT_SCALED = "a line of zero length cannot be scaled"
 NO_SUCH_PERIPHERAL = "no such peripheral on the bus"
 NO_T_VALID_TO_VARY = "the peripheral records no t_valid to vary"
 
+# pinlib/engines/bench.py (a rise time measured on the board against the model)
+NO_SUCH_BUS = "no bus of that id in the design"
+BENCH_AGREES = "the measurement agrees with the model"
+BENCH_ABOVE = ("the board holds more capacitance than the model: revisit, most likely "
+               "first,")
+BENCH_BELOW = ("the board holds less capacitance than the model (the model takes every "
+               "contribution at its maximum): revisit, largest first,")
+REVISIT_PINS = ("pins {value}: each part's c_in (the datasheet's maximum, or its typical "
+                "value on a real board) and parts on the line the design does not list")
+REVISIT_TRACES = "traces {value}: the trace lengths and the geometry (width, height, er)"
+REVISIT_CABLES = "cables {value}: each cable class's capacitance per length and its length"
+REVISIT_EXTRA = ("extra {value}: extra_capacitance (connectors, ESD parts, test points not "
+                 "in the design)")
+REVISIT_PULLUP = ("the pull-up {rp} on the line: the fitted resistor's value and any pull-ups "
+                  "inside parts (Cb from a reading scales as 1/Rp)")
+REVISIT_PROBE = ("the measurement: the probe's capacitance, its ground lead, and the levels "
+                 "the rise was read between")
+# the command's measuring levels
+LEVELS_FORM = "measuring levels are two numbers, low,high"
+
 # ---------------------------------------------------------------- studies
 # pinlib/studies/compare.py
 NO_SNAPSHOT_PLACE = "the design was not loaded from a file, so it has no snapshot place"
@@ -356,6 +399,8 @@ MODULES = (
     "pinlib.library.schema",
     "pinlib.library.values",
     "pinlib.library.fields",
+    "pinlib.library.folders",
+    "pinlib.library.plausible",
     "pinlib.library.record",
     "pinlib.model.design",
     "pinlib.cli.commands.parts",
@@ -374,6 +419,8 @@ MODULES = (
     "pinlib.engines.pushline",
     "pinlib.engines.pushpull",
     "pinlib.engines.spi",
+    "pinlib.engines.bench",
+    "pinlib.cli.commands.measured",
     "pinlib.studies.compare",
     "pinlib.studies.candidates",
     "pinlib.studies.whatif",

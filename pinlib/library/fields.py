@@ -33,6 +33,8 @@ __all__ = [
     "models",
     "glossary",
     "resolve_path",
+    "model_at",
+    "unknown_field_help",
 ]
 
 
@@ -138,6 +140,38 @@ def glossary() -> dict[str, str]:
         if m and m.group(1) != "name":
             out[m.group(1)] = m.group(2)
     return out
+
+
+def model_at(root: type[BaseModel], loc) -> type[BaseModel] | None:
+    """The model whose field the last key of ``loc`` (a pydantic error location) names:
+    ``("bus", 0, "devices", 1, "prat")`` -> the device model.  None when ``loc`` leaves
+    the models (a plain value, a key of a free table)."""
+    model, keys, i = root, list(loc)[:-1], 0
+    while i < len(keys):
+        info = model.model_fields.get(keys[i]) if isinstance(keys[i], str) else None
+        if info is None:
+            return None
+        inner = mapping_of(info) or sequence_of(info)
+        if inner is not None:
+            model, i = inner, i + 2
+            continue
+        sub = submodel(info)
+        if sub is None:
+            return None
+        model, i = sub, i + 1
+    return model
+
+
+def unknown_field_help(root: type[BaseModel], loc, format_name: str) -> tuple[str, str | None]:
+    """(expected, hint) for an unknown key at ``loc``: the fields of that table in the
+    named format, and the closest of them to the key."""
+    model = model_at(root, loc)
+    if model is None or not loc:
+        return M.EXPECTED_FIELD_OF.format(format=format_name, fields="see its documentation"), None
+    names = list(model.model_fields)
+    key = str(loc[-1])
+    return (M.EXPECTED_FIELD_OF.format(format=format_name, fields=", ".join(names)),
+            _close(key, names))
 
 
 def _close(word: str, choices) -> str | None:

@@ -24,6 +24,7 @@ from pinlib.core import messages as M
 from pinlib.core.errors import LibraryError, PinlibError
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_index, line_of, load
+from pinlib.library.fields import unknown_field_help
 from pinlib.library.schema import FORMAT, Part
 from pinlib.library.values import Sourced
 
@@ -79,8 +80,13 @@ def read_part_file(path: Path, *, builtin: bool = False) -> PartFile:
 
 
 def pydantic_errors(exc: ValidationError, *, file=None, locate=None, cls=LibraryError,
-                    origin_file=None) -> list[PinlibError]:
-    """Turn a pydantic ValidationError into pinlib errors naming file, line and field."""
+                    origin_file=None, model: type[BaseModel] = Part,
+                    format_name: str = "part") -> list[PinlibError]:
+    """Turn a pydantic ValidationError into pinlib errors naming file, line and field.
+
+    ``model`` is the root model that was validated and ``format_name`` the name of its
+    format: an unknown key is answered with the fields of its table and the closest one.
+    """
     out: list[PinlibError] = []
     for err in exc.errors(include_url=False):
         loc = tuple(err.get("loc", ()))
@@ -93,9 +99,10 @@ def pydantic_errors(exc: ValidationError, *, file=None, locate=None, cls=Library
                            value=inner.value, expected=inner.expected, hint=inner.hint))
             continue
         kind = err.get("type", "")
+        hint = None
         if kind == "extra_forbidden":
             problem = M.UNKNOWN_FIELD
-            expected = "a field of the part format (see 'pinlib parts schema')"
+            expected, hint = unknown_field_help(model, loc, format_name)
         elif kind == "missing":
             problem, expected = M.MISSING_FIELD, None
         elif kind == "literal_error":
@@ -107,7 +114,7 @@ def pydantic_errors(exc: ValidationError, *, file=None, locate=None, cls=Library
         if isinstance(value, dict):
             value = None
         out.append(cls(problem, file=where, line=line, field=dotted, value=value,
-                       expected=expected))
+                       expected=expected, hint=hint))
     return out
 
 
@@ -168,11 +175,20 @@ def validate_part(merged: dict, origin: dict, files: dict[str, PartFile]) -> Par
             return None
 
         raise _Many(pydantic_errors(exc, origin_file=origin_file, locate=locate)) from None
-    return _with_origins(part, origin, own)
+    stamps = {pid: (str(pf.path), _file_provenance(pf.raw)) for pid, pf in files.items()}
+    return _with_origins(part, origin, own, stamps)
 
 
-def _with_origins(part: Part, origin: dict, own: str) -> Part:
-    """Stamp every Sourced value with the part id whose file set it."""
+def _file_provenance(raw: dict) -> dict:
+    prov = raw.get("provenance")
+    return {k: v for k, v in prov.items() if k in ("basis", "source") and isinstance(v, str)} \
+        if isinstance(prov, dict) else {}
+
+
+def _with_origins(part: Part, origin: dict, own: str, stamps: dict | None = None) -> Part:
+    """Stamp every Sourced value with the part id whose file set it, that file, and the
+    file's basis and source where the value states none of its own."""
+    stamps = stamps or {}
 
     # Only what holds a Sourced value is rebuilt; everything else is returned as it is
     # (a part holds hundreds of None fields, and copying each model was most of the load
@@ -181,7 +197,9 @@ def _with_origins(part: Part, origin: dict, own: str) -> Part:
         if obj is None or isinstance(obj, (str, bool, int, float)):
             return obj
         if isinstance(obj, Sourced):
-            return obj.with_origin(_origin_of(origin, path) or own)
+            pid = _origin_of(origin, path) or own
+            file, prov = stamps.get(pid, (None, None))
+            return obj.with_origin(pid, file=file, provenance=prov)
         if isinstance(obj, dict):
             out = {k: walk(v, path + (k,)) for k, v in obj.items()}
             return obj if all(out[k] is v for k, v in obj.items()) else out
@@ -288,17 +306,52 @@ class Library:
         return difflib.get_close_matches(part_id, list(self.parts), n=n, cutoff=0.4)
 
     def get(self, part_id: str, *, file=None, line=None, field=None) -> Part:
-        """The part with this id; an unknown id is an error naming the closest ids."""
+        """The part with this id.
+
+        A part whose file (or a file it extends) does not validate is an error at the
+        broken file, line and field, naming where it was asked for; an unknown id is an
+        error naming the closest ids and any library file that could not be read.
+        """
         if part_id in self.parts:
             return self.parts[part_id]
-        broken = [p for p in self.problems if p.file and part_id in Path(p.file).stem]
+        where = _place(file, line, field)
+        broken = self.problems_of(part_id)
+        if broken:
+            first = broken[0]
+            hints = [first.hint, M.NAMED_AT.format(where=where) if where else None]
+            if len(broken) > 1:
+                hints.append(M.MORE_PROBLEMS.format(n=len(broken) - 1))
+            raise LibraryError(M.PART_DOES_NOT_VALIDATE.format(part=part_id,
+                                                               problem=first.problem),
+                               file=first.file, line=first.line, field=first.field,
+                               value=first.value, expected=first.expected,
+                               hint="; ".join(h for h in hints if h))
         near = self.closest(part_id)
         hint = ("closest in the library: " + ", ".join(near)) if near else \
             "'pinlib parts list' shows the library"
-        if broken:
-            hint = f"its file has errors: {broken[0].message}"
+        unread = self.unread()
+        if unread:
+            hint += "; " + M.UNREAD_FILES.format(n=len(unread), first=unread[0].message)
         raise LibraryError(M.UNKNOWN_PART, file=file, line=line, field=field, value=part_id,
                            hint=hint)
+
+    def problems_of(self, part_id: str) -> list[PinlibError]:
+        """The problems that keep ``part_id`` out of the library (its file, the files it
+        extends, or a file that could not be read whose name is the id); empty when the
+        part loads or no file holds it."""
+        if part_id in self.files:
+            self.parts.get(part_id)  # a lazy library validates it now, collecting problems
+            if part_id in self.parts:
+                return []
+            chain = {str(self.files[c].path) for c in self.chain(part_id)}
+            return [p for p in self.problems if p.file in chain]
+        return [p for p in self.unread() if Path(p.file).stem == part_id]
+
+    def unread(self) -> list[PinlibError]:
+        """Problems of library files that could not be read as part files at all."""
+        read = {str(pf.path) for pf in self.files.values()}
+        return [p for p in self.problems if p.file and p.file not in read
+                and Path(p.file).suffix == ".toml"]
 
     def path_of(self, part_id: str) -> Path:
         return self.files[part_id].path
@@ -320,6 +373,13 @@ class Library:
     def placeable(self) -> dict[str, Part]:
         """Parts that can stand on a board (not abstract classes)."""
         return {k: p for k, p in self.parts.items() if not p.abstract}
+
+
+def _place(file, line, field) -> str | None:
+    if not file and not field:
+        return None
+    at = (f"{file}:{line}" if line else str(file)) if file else ""
+    return ", ".join(b for b in (at, f"field '{field}'" if field else "") if b)
 
 
 def library_folders(extra: Iterable[str | os.PathLike] = (), *, env: bool = True) -> list[Path]:

@@ -40,6 +40,7 @@ from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, field_valida
 
 from pinlib.core import messages as M
 from pinlib.core.protocols import PIN_FUNCTIONS
+from pinlib.core.quantity import format_si
 from pinlib.library.values import Sourced, sourced_parser, threshold_parser
 
 __all__ = [
@@ -177,11 +178,40 @@ class Provenance(_Model):
 
 class LinePerLength(_Model):
     """A cable or interconnect class, per length: capacitance (per conductor to its
-    return), delay, and impedance when known."""
+    return), delay and impedance.
 
-    capacitance: CapPerLength
+    Any two define the third on a lossless line (Z0 = sqrt(L'/C'), tpd = sqrt(L'C'), so
+    C' = tpd / Z0 and tpd = Z0 C'); the one not given is derived (basis ``derived``).
+    Three that disagree are listed by ``pinlib parts check``
+    (:mod:`pinlib.library.plausible`).
+    """
+
+    capacitance: CapPerLength | None = None
     delay: DelayPerLength | None = None
     impedance: Resistance | None = None
+
+    @model_validator(mode="after")
+    def _two_of_three(self):
+        c, d, z = self.capacitance, self.delay, self.impedance
+        given = [x for x in (c, d, z) if x is not None]
+        if len(given) == 3 or (c is not None and len(given) == 1):
+            return self  # capacitance alone serves the bus engines (no delay, no Z0)
+        if len(given) < 2 or (z is not None and not z.value > 0) or \
+                (c is not None and not c.value > 0):
+            raise ValueError(M.CABLE_NEEDS_TWO_OF_THREE)
+        if c is None:
+            value, field, unit = d.value / z.value, "capacitance", "F/m"
+            how = f"delay / impedance = {d.text} / {z.text}"
+        elif d is None:
+            value, field, unit = z.value * c.value, "delay", "s/m"
+            how = f"impedance x capacitance = {z.text} x {c.text}"
+        else:
+            value, field, unit = d.value / c.value, "impedance", "Ω"
+            how = f"delay / capacitance = {d.text} / {c.text}"
+        derived = Sourced(value, unit, format_si(value, unit), "derived",
+                          f"{how} (lossless line)")
+        object.__setattr__(self, field, derived)
+        return self
 
 
 class Bridge(_Model):

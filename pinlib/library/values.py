@@ -45,6 +45,11 @@ class Sourced:
         The typical value, kept for information only.
     origin : str or None
         The part id whose file set this value (differs from the part when inherited).
+    origin_file : str or None
+        The file of that part.
+    file_filled : tuple of str
+        ``("basis", "source")`` when the value states neither and takes both from the
+        provenance of the file that set it (not of the part that inherits it).
     """
 
     value: Any
@@ -54,6 +59,8 @@ class Sourced:
     source: str | None = None
     typ: Any = None
     origin: str | None = None
+    origin_file: str | None = None
+    file_filled: tuple = ()
 
     @property
     def derived(self) -> bool:
@@ -69,15 +76,36 @@ class Sourced:
             return self.value.resolve(vdd)
         return self.value
 
-    def with_origin(self, origin: str) -> Sourced:
+    def with_origin(self, origin: str, *, file: str | None = None,
+                    provenance: dict | None = None) -> Sourced:
+        """The value stamped with the part (and file) that set it; a basis or source it
+        does not state is taken from that file's ``provenance`` table."""
         if self.origin:
             return self
+        changes: dict = {"origin": origin, "origin_file": file}
+        if provenance is not None and self.basis is None and self.source is None:
+            # a value that states nothing of its own is as its file says (a value with
+            # its own source keeps it; its basis is still its file's, see file_filled)
+            changes["basis"] = provenance.get("basis") or "generic"  # the format's default
+            changes["source"] = provenance.get("source") or None
+            changes["file_filled"] = ("basis", "source")
         # A copy of the instance dict with the origin set: dataclasses.replace (which
         # runs __init__ through the field list) is five times slower, and a library load
         # stamps every value of every part.
         stamped = object.__new__(type(self))
-        stamped.__dict__.update(self.__dict__, origin=origin)
+        stamped.__dict__.update(self.__dict__, **changes)
         return stamped
+
+    def provenance_text(self) -> str:
+        """``'adc-generic (adc-generic.toml), generic: typical values'``: the part and
+        file that set the value, then its basis and source."""
+        import os
+
+        where = self.origin or ""
+        if self.origin_file:
+            where += f" ({os.path.basename(self.origin_file)})"
+        bits = ": ".join(b for b in (self.basis, self.source) if b)
+        return ", ".join(b for b in (where, bits) if b)
 
     def describe(self) -> str:
         """``'8 pF (datasheet: rev C, table 7.5)'``"""

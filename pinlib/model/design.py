@@ -27,6 +27,7 @@ from pinlib.core.errors import DesignError, PinlibError
 from pinlib.core.quantity import format_si, parse
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_index, line_of, load
+from pinlib.library.folders import require_folders
 from pinlib.library.loader import Library, load_library, pydantic_errors
 from pinlib.library.schema import Part
 
@@ -387,16 +388,22 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
         raw = RawDesign.model_validate(data)
     except ValidationError as exc:
         errors = pydantic_errors(exc, file=fname, locate=lambda _f, loc: line_of(index, loc),
-                                 cls=DesignError)
+                                 cls=DesignError, model=RawDesign, format_name="design")
+        # a misspelt key explains the required field it leaves missing: name it first
+        errors.sort(key=lambda e: e.problem != M.UNKNOWN_FIELD)
         raise errors[0] from None
     if library is None:
         base = path.parent if path else Path.cwd()
-        folders = [base / p for p in raw.library] + [Path(p) for p in library_folders]
-        library = load_library(folders, lazy=True)  # only the parts the design names
-        missing = [p for p in library.problems if "folder not found" in p.problem]
-        if missing:
-            raise DesignError(M.DESIGN_LIBRARY_MISSING,
-                              field="library", value=missing[0].file, **at(("library",)))
+        own = [base / p for p in raw.library]
+        for i, folder in enumerate(own):
+            if not folder.is_dir():
+                raise DesignError(M.DESIGN_LIBRARY_MISSING, field=f"library[{i}]",
+                                  value=raw.library[i], hint=M.LOOKED_FOR.format(path=folder),
+                                  **at(("library", i)))
+        # PINLIB_LIBRARY and the caller's folders: an error naming the setting
+        require_folders(library_folders)
+        library = load_library(own + [Path(p) for p in library_folders],
+                               lazy=True)  # only the parts the design names
     return _build(raw, path, library, text, swaps or {})
 
 
@@ -421,14 +428,22 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
 
     swapped: set[str] = set()
 
+    def part_of(part_id: str, loc) -> Part:
+        # A part whose file does not validate is the library's error at that file (it
+        # names this place); an unknown id is this file's error.
+        try:
+            return library.get(part_id, file=fname, line=line_of(index, loc),
+                               field=dotted_path(loc))
+        except PinlibError as e:
+            if e.problem != M.UNKNOWN_PART:
+                raise
+            raise err(M.UNKNOWN_PART, loc, value=part_id, hint=e.hint) from None
+
     def device(d: RawDevice, loc) -> Device:
         part_id = swaps.get(d.ref, d.part)
         if d.ref in swaps:
             swapped.add(d.ref)
-        try:
-            part = library.get(part_id)
-        except PinlibError as e:
-            raise err(M.UNKNOWN_PART, loc + ("part",), value=part_id, hint=e.hint) from None
+        part = part_of(part_id, loc + ("part",))
         if part.abstract:
             raise err(M.ABSTRACT_ON_BOARD, loc + ("part",),
                       value=part_id, hint="place a part that extends it, or `pinlib parts new`")
@@ -453,10 +468,7 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
         if t.length is None:
             raise err(M.TRACE_NEEDS_LENGTH, loc + ("length",))
         if t.part:
-            try:
-                cable = library.get(t.part)
-            except PinlibError as e:
-                raise err(M.UNKNOWN_PART, loc + ("part",), value=t.part, hint=e.hint) from None
+            cable = part_of(t.part, loc + ("part",))
             if cable.line is None:
                 raise err(M.NOT_A_CABLE, loc + ("part",), value=t.part)
             return (Section(t.length, None, cable.line.capacitance.value,
@@ -480,10 +492,7 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
     def cables(items, loc) -> tuple[Cable, ...]:
         out = []
         for i, c in enumerate(items):
-            try:
-                part = library.get(c.part)
-            except PinlibError as e:
-                raise err(M.UNKNOWN_PART, loc + (i, "part"), value=c.part, hint=e.hint) from None
+            part = part_of(c.part, loc + (i, "part"))
             if part.line is None:
                 raise err(M.NOT_A_CABLE, loc + (i, "part"), value=c.part)
             out.append(Cable(c.part, part, c.length))
@@ -516,6 +525,7 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
         else:
             bus = _push_pull_bus(rb, bloc, device, sections, err)
         buses.append(bus)
+    _one_part_per_reference(buses, err, fname, index)
     unknown = set(swaps) - swapped
     if unknown:
         raise DesignError(M.NO_SUCH_REFERENCE, field="swap",
@@ -524,6 +534,29 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
                     raw.warn_margin, raw.distribution, raw.description, text)
     object.__setattr__(design, "_raw", raw)
     return design
+
+
+def _one_part_per_reference(buses, err, fname, index) -> None:
+    """One reference designator is one chip: it may sit on several buses (one chip on two
+    buses), but always as the same part, and once per bus (a bridging part once per side).
+    """
+    seen: dict[str, tuple[Bus, Device]] = {}
+    for bus in buses:
+        for d in bus.devices:
+            first = seen.get(d.ref)
+            if first is None:
+                seen[d.ref] = (bus, d)
+                continue
+            fb, fd = first
+            where = f"{fname}:{line_of(index, fd.loc + ('ref',))}" if fname else \
+                f"line {line_of(index, fd.loc + ('ref',))}"
+            also = M.ALSO_AT.format(where=f"{where}, field '{dotted_path(fd.loc + ('ref',))}'",
+                                    part=fd.part_id)
+            if fd.part_id != d.part_id:
+                raise err(M.REFERENCE_TWO_PARTS.format(part=d.part_id, other=fd.part_id),
+                          d.loc + ("ref",), value=d.ref, hint=also)
+            if fb is bus and not (d.is_bridge and d.side != fd.side):
+                raise err(M.REFERENCE_TWICE_ON_BUS, d.loc + ("ref",), value=d.ref, hint=also)
 
 
 _SEGMENT_KEYS = ("supply", "supply_tolerance", "pullup", "pullup_tolerance", "pullup_series",

@@ -129,7 +129,7 @@ def _sourced_entry(v: Sourced, vdd: float | None, library) -> dict:
         out["value"] = json_number(v.value)
     if v.typ is not None:
         out["typ"] = str(v.typ) if isinstance(v.typ, Threshold) else json_number(v.typ)
-    basis, source, from_part = v.basis, v.source, False
+    basis, source, from_part = v.basis, v.source, bool(v.file_filled)
     if (basis is None or source is None) and v.origin and library is not None \
             and v.origin in library.parts:
         prov = library.parts[v.origin].provenance

@@ -97,6 +97,11 @@ def run(args) -> int:
     from pinlib.studies.snapshotfile import may_have_snapshot
 
     design = load_design(args.design, library_folders=args.library)
+    problems = design.library.problems  # files that could not be read, parts asked for
+    if problems:
+        print("pinlib: warning: " + M.LIBRARY_HAS_PROBLEMS.format(n=len(problems))
+              + "; " + M.FIRST_PROBLEM.format(message=problems[0].message), file=sys.stderr)
+    _warn_implausible(design)
     if getattr(args, "seed", None) is not None and getattr(args, "monte_carlo", None) is None:
         from pinlib.core.errors import InputError
 
@@ -133,6 +138,30 @@ def run(args) -> int:
 
         print(f"saved {save_snapshot(design, result)}", file=sys.stderr)
     return result.exit_code()
+
+
+def _warn_implausible(design) -> None:
+    """Warn about implausible values of the parts the design places (devices, cables and
+    cable sections): the check goes on with them, a reviewer should know."""
+    from pinlib.library.plausible import part_warnings
+
+    ids: dict[str, None] = {}
+    for bus in design.buses:
+        for d in bus.devices:
+            ids[d.part_id] = None
+        for seg in bus.segments:
+            for c in seg.cables:
+                ids[c.part_id] = None
+            for s in seg.sections:
+                if s.part_id:
+                    ids[s.part_id] = None
+        for line in bus.lines.values():
+            for s in line.sections:
+                if s.part_id:
+                    ids[s.part_id] = None
+    for pid in ids:
+        for w in part_warnings(design.library.get(pid), design.library):
+            print(f"pinlib: warning: {pid}: " + w.message, file=sys.stderr)
 
 
 def _what_if(design, args) -> dict:

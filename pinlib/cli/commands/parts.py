@@ -157,8 +157,10 @@ def _no_action(parser) -> int:
 # --- helpers ---------------------------------------------------------------------------
 
 def _load(args, extra=()):
+    from pinlib.library.folders import require_folders
     from pinlib.library.loader import load_library
 
+    require_folders(args.library)  # a folder it was told to read: exit 2, naming who said so
     return load_library(list(args.library) + list(extra))
 
 
@@ -315,18 +317,14 @@ def _show_data(lib, pid) -> dict:
             attributes.append({"field": dotted(path), "value": item})
             continue
         origin = item.origin or pid
-        own_basis = item.basis
-        part_basis = None
-        if own_basis is None:
-            prov = lib.files[origin].raw.get("provenance") if origin in lib.files else None
-            part_basis = (prov or {}).get("basis") if isinstance(prov, dict) else None
-            part_basis = part_basis or part.provenance.basis
+        # the loader fills a basis or source the value does not state from the file that
+        # set it (the class it was inherited from, not this part)
         entry = {
             "field": dotted(path),
             "text": item.text or str(item.value),
             "unit": item.unit,
-            "basis": own_basis or part_basis,
-            "basis_from_part": own_basis is None,
+            "basis": item.basis or _file_basis(lib, origin) or part.provenance.basis,
+            "basis_from_part": item.basis is None or "basis" in item.file_filled,
             "source": item.source,
             "typ": None if item.typ is None else (
                 str(item.typ) if isinstance(item.typ, Threshold) else item.typ),
@@ -362,6 +360,12 @@ def _show_data(lib, pid) -> dict:
         "attributes": attributes,
         "values": values,
     }
+
+
+def _file_basis(lib, pid) -> str | None:
+    """The basis of a part file's own ``provenance`` table (None when it has none)."""
+    prov = lib.files[pid].raw.get("provenance") if pid in lib.files else None
+    return prov.get("basis") if isinstance(prov, dict) else None
 
 
 def _typ_text(entry) -> str:
@@ -426,7 +430,9 @@ def _run_show(args) -> int:
     else:
         print("(no values)")
     print()
-    print("basis '(part)': the value has none of its own and takes its part's provenance.")
+    print("basis '(part)': the value states no basis of its own and takes the provenance of "
+          "the file that set it (this part's, or the class's it inherits from); so does its "
+          "source when it states none.")
     return 0
 
 
@@ -472,7 +478,18 @@ def _run_record(args) -> int:
     typ = f", typ {args.typ}" if args.typ else ""
     print(f"recorded {'.'.join(keys)} = {args.value}{typ} ({args.basis}: {args.source}) "
           f"in {_rel(path)}")
+    _warn_implausible(_load(args), args.id, ".".join(keys))
     return 0
+
+
+def _warn_implausible(lib, pid, field=None) -> list:
+    """Print a warning for each implausible value of the part (only ``field`` if given)."""
+    from pinlib.library.plausible import part_warnings
+
+    found = [w for w in part_warnings(lib.get(pid), lib) if field is None or w.field == field]
+    for w in found:
+        print("pinlib: warning: " + w.message, file=sys.stderr)
+    return found
 
 
 # --- check -----------------------------------------------------------------------------
@@ -487,10 +504,14 @@ def _under(path, folder: Path) -> bool:
 
 def _run_check(args) -> int:
     from pinlib.core.errors import LibraryError
+    from pinlib.library.plausible import part_warnings
 
     if args.folder is None:
         lib = _load(args)
+        lib.resolve_all()
         problems = list(lib.problems)
+        for pid in lib.parts:  # implausible values, each listed with the file that set it
+            problems += part_warnings(lib.parts[pid], lib, own_only=True)
         scope = "the library"
         n_files = len(lib.files)
     else:
@@ -500,6 +521,8 @@ def _run_check(args) -> int:
         lib = _load(args, extra=[folder])
         root = folder.resolve()
         problems = [p for p in lib.problems if p.file and _under(p.file, root)]
+        problems += [w for pid in lib.parts if _under(lib.files[pid].path, root)
+                     for w in part_warnings(lib.parts[pid], lib, own_only=True)]
         # A part of the folder that does not load because of a file it extends.
         for pid, pf in lib.files.items():
             if pid in lib.parts or not _under(pf.path, root):

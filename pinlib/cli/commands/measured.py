@@ -1,0 +1,85 @@
+"""``pinlib measured DESIGN``: a rise time measured on the board against the model's Cb."""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+
+from pinlib.core import messages as M
+
+__all__ = ["add_parser", "run", "levels_type"]
+
+EXAMPLES = """\
+examples:
+  pinlib measured board.toml --bus i2c0 --rise 250ns --probe 10pF
+  pinlib measured board.toml --bus i2c0 --line scl --rise "1.1 us" --probe 12pF --levels 10,90
+  pinlib measured board.toml --bus sense --segment sense-2 --rise 400ns --probe 10pF --json
+
+The rise of an open-drain line (I2C, SMBus) is an RC charge through the pull-up, so a
+rise read between two levels with a probe of known capacitance gives the line's bus
+capacitance. The command takes the pull-up the design puts on the line (its resistor in
+parallel with any inside the parts), turns the reading into Cb over the pull-up's
+tolerance and a 10 % reading tolerance (common practice), and compares it with the Cb the
+model adds up. When they disagree it lists the contributions to revisit, most likely
+first.
+
+exit status: 0 the measurement agrees with the model, 1 it does not, 2 bad input.
+"""
+
+
+def levels_type(text: str) -> tuple[float, float]:
+    """``"30,70"`` or ``"0.3,0.7"`` -> (0.3, 0.7): percent when a number is above 1."""
+    bits = [b.strip().rstrip("%") for b in str(text).split(",")]
+    try:
+        lo, hi = (float(b) for b in bits)
+    except ValueError:
+        raise argparse.ArgumentTypeError(M.LEVELS_FORM + f" (got {text!r})") from None
+    if lo > 1 or hi > 1:
+        lo, hi = lo / 100.0, hi / 100.0
+    return lo, hi
+
+
+def add_parser(sub) -> None:
+    p = sub.add_parser(
+        "measured",
+        help="compare a rise time measured on the board with the model's bus capacitance",
+        description="Turn a rise time measured on an open-drain line (with the probe's "
+                    "capacitance and the measuring levels) into bus capacitance, and compare "
+                    "it with the design's modelled Cb.",
+        epilog=EXAMPLES, formatter_class=argparse.RawDescriptionHelpFormatter)
+    p.add_argument("design", metavar="DESIGN", help="the design file (.toml)")
+    p.add_argument("--bus", required=True, metavar="ID", help="the bus measured (i2c, smbus)")
+    p.add_argument("--line", default="sda", choices=["sda", "scl"],
+                   help="the line measured (default sda)")
+    p.add_argument("--segment", metavar="ID",
+                   help="the segment measured, on a bus with a bridging part (default: first)")
+    p.add_argument("--rise", required=True, metavar="TIME",
+                   help="the rise time read on the oscilloscope, e.g. 250ns")
+    p.add_argument("--probe", required=True, metavar="CAP",
+                   help="the probe's capacitance, e.g. 10pF")
+    p.add_argument("--levels", type=levels_type, default=(0.3, 0.7), metavar="LO,HI",
+                   help="the levels the rise was read between, in %% of the rail "
+                        "(default 30,70)")
+    p.add_argument("--library", metavar="DIR", action="append", default=[],
+                   help="a team library folder (repeatable; takes precedence over the design's)")
+    p.add_argument("--json", action="store_true", help="print the comparison as JSON")
+    p.set_defaults(run=run)
+
+
+def run(args) -> int:
+    from pinlib.core.quantity import parse
+    from pinlib.engines.bench import compare_rise
+    from pinlib.model.design import load_design
+
+    rise = parse(args.rise, "s", field="--rise")
+    probe = parse(args.probe, "F", field="--probe")
+    design = load_design(args.design, library_folders=args.library)
+    got = compare_rise(design, args.bus, rise, probe, levels=args.levels, signal=args.line,
+                       segment=args.segment)
+    if args.json:
+        json.dump(got.to_json(), sys.stdout, indent=2, ensure_ascii=False)
+        sys.stdout.write("\n")
+    else:
+        sys.stdout.write(got.format_text())
+    return 0 if got.verdict == "agrees" else 1

@@ -1,0 +1,43 @@
+"""Team library folders that do not exist, blamed on what named them.
+
+A folder can come from three places: the ``PINLIB_LIBRARY`` environment variable, a
+design's ``library`` line, or the caller (the command line's ``--library``).  The loader
+notes a missing folder as a library problem; a command that was told to read a folder
+refuses to go on without it, and its error names the setting that asked for it.
+"""
+
+from __future__ import annotations
+
+import os
+from collections.abc import Iterable
+from pathlib import Path
+
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
+from pinlib.library.loader import library_folders
+
+__all__ = ["ENV", "OPTION", "require_folders"]
+
+ENV = "PINLIB_LIBRARY"
+OPTION = "--library"
+
+
+def require_folders(given: Iterable[str | os.PathLike] = (), *, env: bool = True,
+                    option: str = OPTION) -> None:
+    """Raise an :class:`InputError` for the first team folder that is not a folder.
+
+    Parameters
+    ----------
+    given : iterable of paths
+        Folders the caller was given (the command line's ``--library``).
+    env : bool
+        Also check the folders of ``PINLIB_LIBRARY``.
+    option : str
+        How the caller's folders were given, for the error's field.
+    """
+    sources = [(p, ENV) for p in (library_folders(env=True) if env else [])]
+    sources += [(Path(p), option) for p in given]
+    for path, source in sources:
+        if not path.is_dir():
+            raise InputError(M.LIBRARY_FOLDER_NOT_FOUND, field=source, value=str(path),
+                             hint=M.FOLDER_NAMED_BY.format(source=source))

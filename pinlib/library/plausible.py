@@ -1,0 +1,162 @@
+"""Values a part file may hold but that no real part has: warnings, not errors.
+
+The schema refuses what cannot be a value at all (a negative capacitance, a lost unit
+prefix).  This module lists what is possible but implausible for the field and the kind
+of pin, by the ranges of :data:`RANGES`, and the cable classes whose capacitance, delay
+and impedance disagree.  ``pinlib parts check`` lists them as problems, ``pinlib parts
+record`` warns when it writes one, and ``pinlib check`` warns about the parts a design
+places.
+
+The ranges are common practice, with no source: wide enough for every ordinary pin
+(a 5 V part's levels, a connector's capacitance), narrow enough to catch a value typed
+in the wrong unit or with the wrong sign.
+"""
+
+from __future__ import annotations
+
+from pinlib.core import messages as M
+from pinlib.core.errors import LibraryError
+from pinlib.core.quantity import format_si
+from pinlib.library.schema import Part
+from pinlib.library.values import Sourced
+
+__all__ = ["RANGES", "LINE_AGREEMENT", "implausible", "part_warnings"]
+
+# common practice, no source: (field, pin drive or "*") -> (low, high, unit); levels in
+# volts at the part's supply (a relative level is tried at the supply's two ends), or as
+# a fraction of that supply when the unit is "VDD".
+RANGES: dict[tuple[str, str], tuple[float, float, str]] = {
+    ("c_in", "*"): (0.1e-12, 50e-12, "F"),
+    ("leakage", "*"): (0.0, 100e-6, "A"),
+    ("v_il", "*"): (0.05, 0.8, "VDD"),
+    ("v_ih", "*"): (0.2, 1.0, "VDD"),
+    ("hysteresis", "*"): (0.0, 0.5, "VDD"),
+    ("v_ol", "*"): (0.0, 1.0, "V"),
+    ("i_ol", "*"): (50e-6, 100e-3, "A"),
+    ("v_oh", "*"): (0.5, 1.0, "VDD"),
+    ("i_oh", "*"): (10e-6, 100e-3, "A"),
+    ("r_out", "*"): (1.0, 1e3, "Ω"),
+    ("abs_max", "*"): (1.0, 45.0, "V"),
+    ("pullup", "*"): (100.0, 1e6, "Ω"),
+    ("pullup_internal", "*"): (1e3, 1e6, "Ω"),
+    ("t_of_min", "*"): (0.0, 1e-6, "s"),
+    ("t_of_max", "*"): (1e-9, 1e-6, "s"),
+    ("f_max", "timing"): (1e3, 10e9, "Hz"),
+    ("t_valid", "timing"): (0.0, 1e-6, "s"),
+    ("t_setup", "timing"): (0.0, 1e-6, "s"),
+    ("t_hold", "timing"): (0.0, 1e-6, "s"),
+    ("t_pd", "timing"): (0.0, 10e-6, "s"),
+    ("capacitance", "line"): (10e-12, 500e-12, "F/m"),
+    ("delay", "line"): (3.3e-9, 20e-9, "s/m"),
+    ("impedance", "line"): (20.0, 300.0, "Ω"),
+}
+
+#: Capacitance, delay and impedance of a cable class agree when C' Z0 is within this
+#: fraction of the delay (common practice, no source: catalogue values are rounded to a
+#: few percent).
+LINE_AGREEMENT = 0.05
+
+
+def _range_text(lo: float, hi: float, unit: str) -> str:
+    if unit == "VDD":
+        return f"{lo:g} VDD to {hi:g} VDD"
+    return f"{format_si(lo, unit)} to {format_si(hi, unit)}"
+
+
+def implausible(value: Sourced, field: str, drive: str = "*",
+                supplies: tuple[float, ...] = ()) -> str | None:
+    """The plausible range of ``field`` as text when ``value`` lies outside it, else None.
+
+    Parameters
+    ----------
+    value : Sourced
+        The stored value.
+    field : str
+        The field's own name (``c_in``, ``v_il``, ``f_max``...).
+    drive : str
+        The pin's drive, ``"timing"`` or ``"line"``.
+    supplies : tuple of float
+        The part's supply range ends, where relative levels are resolved. [V]
+    """
+    row = RANGES.get((field, drive)) or RANGES.get((field, "*"))
+    if row is None or value.derived:
+        return None
+    lo, hi, unit = row
+    for vdd in supplies or (None,):
+        try:
+            x = float(value.at(vdd))
+        except ValueError:  # a relative level and no supply to resolve it at
+            return None
+        if unit == "VDD":
+            if vdd is None or not vdd > 0:
+                return None
+            x = x / vdd
+        if not lo <= x <= hi:
+            return _range_text(lo, hi, unit)
+    return None
+
+
+def _where(lib, pid: str, value: Sourced, path: tuple) -> dict:
+    origin = value.origin or pid
+    pf = lib.files.get(origin) if lib is not None else None
+    return {"file": str(pf.path) if pf else value.origin_file,
+            "line": pf.line(path) if pf else None}
+
+
+def part_warnings(part: Part, lib=None, *, own_only: bool = False) -> list[LibraryError]:
+    """Every implausible value of a part and a disagreeing cable class, as problems
+    naming the file (the one that set the value), line and field.
+
+    ``own_only`` leaves out values the part inherits (a whole library lists those once,
+    with the class that sets them).
+    """
+    out: list[LibraryError] = []
+
+    def pins(prefix: tuple, table: dict, supply) -> None:
+        ends = () if supply is None else (float(supply.min.value), float(supply.max.value))
+        for name, pin in table.items():
+            for field in type(pin).model_fields:
+                value = getattr(pin, field)
+                if isinstance(value, Sourced):
+                    _add(prefix + (name, field), value, field, pin.drive, ends)
+
+    def _add(path, value, field, drive, ends=()):
+        if own_only and value.origin not in (None, part.id):
+            return
+        rng = implausible(value, field, drive, ends)
+        if rng:
+            out.append(LibraryError(M.IMPLAUSIBLE_VALUE, field=".".join(map(str, path)),
+                                    value=value.text, expected=M.PLAUSIBLE_RANGE.format(
+                                        range=rng), **_where(lib, part.id, value, path)))
+
+    pins(("pins",), part.pins, part.supply)
+    for side_name, side in part.sides.items():
+        pins(("sides", side_name, "pins"), side.pins, part.supply_for(side_name))
+    for field in type(part.timing).model_fields:
+        value = getattr(part.timing, field)
+        if isinstance(value, Sourced):
+            _add(("timing", field), value, field, "timing")
+    if part.line is not None:
+        for field in ("capacitance", "delay", "impedance"):
+            value = getattr(part.line, field)
+            if isinstance(value, Sourced):
+                _add(("line", field), value, field, "line")
+        if not own_only or part.line.capacitance.origin in (None, part.id):
+            out += _line_agreement(part, lib)
+    return out
+
+
+def _line_agreement(part: Part, lib) -> list[LibraryError]:
+    c, d, z = part.line.capacitance, part.line.delay, part.line.impedance
+    if c is None or d is None or z is None or c.derived or d.derived or z.derived:
+        return []
+    if not (c.value > 0 and d.value > 0 and z.value > 0):
+        return []
+    implied = float(z.value) * float(c.value)  # tpd = Z0 C' (lossless line)
+    off = implied / float(d.value) - 1.0
+    if abs(off) <= LINE_AGREEMENT:
+        return []
+    return [LibraryError(M.LINE_VALUES_DISAGREE.format(
+        implied=f"{implied * 1e9:.3g} ns/m", delay=d.text, off=f"{off:+.0%}"),
+        field="line", expected=M.LINE_AGREEMENT_RULE.format(pct=f"{LINE_AGREEMENT:.0%}"),
+        **_where(lib, part.id, c, ("line", "capacitance")))]

@@ -1,0 +1,192 @@
+"""Implausible part values and cable classes (pinlib.library.plausible, the LinePerLength
+model): issue 13, items 15 and 19."""
+
+from __future__ import annotations
+
+import textwrap
+
+import pytest
+
+from pinlib.cli import main
+from pinlib.core.errors import LibraryError
+from pinlib.library.loader import load_library
+from pinlib.library.plausible import RANGES, implausible, part_warnings
+from pinlib.library.values import Sourced
+
+CABLE = """\
+format = "pinlib.part/1"
+id = "{id}"
+title = "Invented cable class (demo data)"
+category = "cable"
+
+[line]
+{line}
+"""
+
+TARGET = """\
+format = "pinlib.part/1"
+id = "odd-target"
+title = "Invented target (demo data)"
+category = "sensor"
+supply = {{ min = "1.7 V", max = "5.5 V" }}
+provenance = {{ basis = "datasheet", source = "invented rev A" }}
+
+[pins.sda]
+function = "i2c-sda"
+drive = "open-drain"
+c_in = "{c_in}"
+v_il = "{v_il}"
+v_ih = "0.7 VDD"
+
+[pins.scl]
+function = "i2c-scl"
+c_in = "8 pF"
+"""
+
+
+@pytest.fixture()
+def team(tmp_path, monkeypatch):
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    folder = tmp_path / "team"
+    folder.mkdir()
+    return folder
+
+
+def _cable(team, pid, line):
+    (team / f"{pid}.toml").write_text(CABLE.format(id=pid, line=textwrap.dedent(line)),
+                                      encoding="utf-8")
+
+
+@pytest.mark.parametrize(("line", "field", "expected"), [
+    # derived from the lossless line, Z0 = sqrt(L'/C') and tpd = sqrt(L'C'): C' = tpd / Z0
+    # = 5 ns/m / 100 Ω = 50 pF/m
+    ('delay = "5 ns/m"\nimpedance = "100 Ω"', "capacitance", 50e-12),
+    # tpd = Z0 C' = 50 Ω x 100 pF/m = 5 ns/m
+    ('capacitance = "1 pF/cm"\nimpedance = "50 Ω"', "delay", 5e-9),
+    # Z0 = tpd / C' = 5 ns/m / 50 pF/m = 100 Ω
+    ('capacitance = "0.5 pF/cm"\ndelay = "5 ns/m"', "impedance", 100.0),
+])
+def test_any_two_of_three_define_the_cable(team, line, field, expected):
+    # 13.15: a class given by impedance and delay (no capacitance) is accepted
+    _cable(team, "c2", line)
+    lib = load_library([team], env=False, strict=True)
+    got = getattr(lib.get("c2").line, field)
+    assert got.value == pytest.approx(expected, rel=1e-12)
+    assert got.derived and "lossless line" in got.source
+
+
+def test_impedance_alone_is_refused(team):
+    _cable(team, "c1", 'impedance = "100 Ω"')
+    with pytest.raises(LibraryError, match="two of capacitance, delay and impedance"):
+        load_library([team], env=False, strict=True)
+
+
+def test_a_cable_by_impedance_and_delay_serves_a_design(team, tmp_path):
+    _cable(team, "zd", 'delay = "5 ns/m"\nimpedance = "100 Ω"')
+    design = tmp_path / "d.toml"
+    design.write_text(f"""\
+format = "pinlib.design/1"
+title = "cable by Z0 and delay (invented)"
+library = ["{team.as_posix()}"]
+
+[[bus]]
+id = "b"
+protocol = "i2c"
+supply = "3.3 V"
+cables = [ {{ part = "zd", length = "2 m" }} ]
+devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
+  {{ ref = "U2", part = "eeprom-i2c" }},
+]
+""", encoding="utf-8")
+    from pinlib.model.design import load_design
+
+    seg = load_design(design).buses[0].segments[0]
+    # derived from C' = tpd / Z0 = 50 pF/m over 2 m
+    assert seg.cables[0].part.line.capacitance.value * 2.0 == pytest.approx(100e-12)
+
+
+@pytest.mark.parametrize(("capacitance", "problem"), [
+    ("0.5 pF/cm", False),   # 100 Ω x 50 pF/m = 5 ns/m: agrees (derived from tpd = Z0 C')
+    ("0.52 pF/cm", False),  # +4 %: within 5 % (common practice, no source)
+    ("0.8 pF/cm", True),    # +60 %
+])
+def test_three_values_that_disagree_are_a_problem(team, capsys, capacitance, problem):
+    _cable(team, "c3", f'capacitance = "{capacitance}"\ndelay = "5 ns/m"\nimpedance = "100 Ω"')
+    lib = load_library([team], env=False, strict=True)
+    found = part_warnings(lib.get("c3"), lib)
+    assert bool(found) is problem
+    assert main(["parts", "check", str(team), "--library", str(team)]) == int(problem)
+    out = capsys.readouterr().out
+    if problem:
+        assert "c3.toml:7, field 'line': capacitance, delay and impedance disagree" in out
+        assert "8 ns/m against the delay 5 ns/m (+60%)" in out
+
+
+@pytest.mark.parametrize(("c_in", "v_il", "fields"), [
+    ("500 pF", "0.3 VDD", ["pins.sda.c_in"]),
+    ("8 pF", "-0.3 V", ["pins.sda.v_il"]),
+    ("8 pF", "0.3 VDD", []),
+])
+def test_implausible_values_are_listed_by_parts_check(team, capsys, c_in, v_il, fields):
+    # 13.19: c_in 500 pF and v_il -0.3 V load (they are values), but are listed
+    (team / "odd.toml").write_text(TARGET.format(c_in=c_in, v_il=v_il), encoding="utf-8")
+    code = main(["parts", "check", str(team), "--library", str(team)])
+    out = capsys.readouterr().out
+    assert code == (1 if fields else 0)
+    for f in fields:
+        assert f"field '{f}': an implausible value for this field" in out
+        assert "(common practice, no source)" in out
+
+
+def test_record_warns_on_an_implausible_value(team, capsys):
+    (team / "odd.toml").write_text(TARGET.format(c_in="8 pF", v_il="0.3 VDD"), encoding="utf-8")
+    lib = ["--library", str(team)]
+    assert main(["parts", "record", "odd-target", "sda.c_in", "500 pF", "--source", "x", *lib]) == 0
+    err = capsys.readouterr().err
+    assert "pinlib: warning:" in err and "field 'pins.sda.c_in'" in err
+    assert "100 fF to 50 pF" in err
+    assert main(["parts", "record", "--source", "x", *lib, "odd-target", "--", "sda.v_il",
+                 "-0.3 V"]) == 0
+    err = capsys.readouterr().err
+    assert "field 'pins.sda.v_il'" in err and "pins.sda.c_in" not in err
+    assert main(["parts", "record", "odd-target", "sda.v_il", "0.3 VDD", "--source", "x",
+                 *lib]) == 0
+    assert "warning" not in capsys.readouterr().err
+
+
+def test_check_warns_about_the_parts_it_places(team, tmp_path, capsys):
+    (team / "odd.toml").write_text(TARGET.format(c_in="8 pF", v_il="-0.3 V"), encoding="utf-8")
+    design = tmp_path / "d.toml"
+    design.write_text(f"""\
+format = "pinlib.design/1"
+title = "implausible part (invented)"
+library = ["{team.as_posix()}"]
+
+[[bus]]
+id = "b"
+protocol = "i2c"
+supply = "3.3 V"
+trace = {{ length = "5 cm", capacitance = "1 pF/cm" }}
+devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
+  {{ ref = "U2", part = "odd-target" }},
+]
+""", encoding="utf-8")
+    main(["check", str(design)])
+    err = capsys.readouterr().err
+    assert "pinlib: warning: odd-target:" in err and "field 'pins.sda.v_il'" in err
+
+
+def test_relative_levels_are_tried_at_both_supply_ends():
+    # 2 V as v_il is 0.36 VDD at 5.5 V but 1.18 VDD at 1.7 V (above 0.8 VDD)
+    v = Sourced(2.0, "V", "2 V")
+    assert implausible(v, "v_il", "open-drain", (1.7, 5.5)) == "0.05 VDD to 0.8 VDD"
+    assert implausible(v, "v_il", "open-drain", (3.0, 5.5)) is None
+
+
+def test_the_builtin_library_holds_no_implausible_value():
+    lib = load_library(env=False)
+    found = [w.message for pid in lib.parts for w in part_warnings(lib.parts[pid], lib)]
+    assert not found
+    assert all(lo <= hi for lo, hi, _ in RANGES.values())
