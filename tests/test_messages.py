@@ -177,6 +177,19 @@ def _(env):
     return _fails(lock, env)
 
 
+@case("LOCK_IS_A_LINK", M.CANNOT_LOCK.format(
+    reason=M.LOCK_IS_A_LINK.format(lock=".x.toml.lock")))
+def _(env):
+    (env.tmp / ".x.toml.lock").symlink_to(env.tmp / "elsewhere")
+
+    def lock(e):
+        with file_lock(e.tmp / "x.toml"):
+            pass
+    got = _fails(lock, env)
+    assert not (env.tmp / "elsewhere").exists()  # the link was not followed
+    return got
+
+
 @case("CANNOT_WRITE_IN_FOLDER", M.CANNOT_WRITE_IN_FOLDER.format(reason=os.strerror(errno.ENOENT)))
 def _(env):
     return _fails(lambda e: atomic_write(e.tmp / "missing-folder" / "x.toml", "x = 1\n"), env)

@@ -44,6 +44,7 @@ NOT_UTF8 = "not UTF-8 text"
 CANNOT_READ = "cannot read the file: {reason}"
 NOT_TOML = "not valid TOML: {detail}"
 CANNOT_LOCK = "cannot lock the file: {reason}"
+LOCK_IS_A_LINK = "its lock file {lock} is a symbolic link, which pinlib does not follow"
 CANNOT_WRITE_IN_FOLDER = "cannot write in this folder: {reason}"
 CANNOT_WRITE_FILE = "cannot write the file: {reason}"
 
