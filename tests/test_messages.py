@@ -19,6 +19,7 @@ import pytest
 
 from pinlib.cli import main
 from pinlib.core import messages as M
+from pinlib.core import worklimits
 from pinlib.core.errors import PinlibError
 from pinlib.core.quantity import parse, parse_threshold
 from pinlib.core.tomlfile import atomic_write, file_lock, tomllib
@@ -805,7 +806,42 @@ def _(env):
     return _fails(lambda e: e.design(SPI_BUS.replace("lines.sclk", "lines.cs")), env)
 
 
+@case("TOO_MANY_DEVICES", lambda: M.TOO_MANY_DEVICES.format(
+    protocol="spi", count=worklimits.MAX_DEVICES_PUSH_PULL + 1,
+    limit=worklimits.MAX_DEVICES_PUSH_PULL))
+def _(env):
+    many = "".join(f'  {{ ref = "P{i}", part = "nor-flash-spi" }},\n'
+                   for i in range(worklimits.MAX_DEVICES_PUSH_PULL - 1))
+    return _fails(lambda e: e.design(SPI_BUS.replace("devices = [\n", "devices = [\n" + many)),
+                  env)
+
+
+@case("TOO_MANY_SECTIONS", lambda: M.TOO_MANY_SECTIONS.format(
+    count=worklimits.MAX_SECTIONS_PER_LINE + 1, limit=worklimits.MAX_SECTIONS_PER_LINE))
+def _(env):
+    stretch = '{ length = "1 mm", geometry = "g" }'
+    many = ", ".join([stretch] * (worklimits.MAX_SECTIONS_PER_LINE + 1))
+    return _fails(lambda e: e.design(SPI_BUS.replace(
+        'lines.sclk = { length = "3 cm", geometry = "g" }',
+        f"lines.sclk = {{ sections = [{many}] }}")), env)
+
+
 # ---------------------------------------------------------------- commands
+@case("INTERRUPTED")
+def _(env):
+    from pinlib.cli.commands import check
+
+    def stop(args):
+        raise KeyboardInterrupt
+
+    env.monkeypatch.setattr(check, "run", stop)
+    design = env.write("design.toml", HEAD + I2C_BUS)
+    code = main(["check", str(design)])
+    err = env.capsys.readouterr().err
+    assert code == 130 and "Traceback" not in err
+    return err
+
+
 @case("NO_FOLDER_FOR_NEW_PART")
 def _(env):
     return env.cli("parts", "new", "fresh", "--from", "eeprom-i2c")
@@ -1442,7 +1478,8 @@ def _(env):
     return _fails(lambda e: monte_carlo(e.design(I2C_BUS), 0), env)
 
 
-@case("TOO_MANY_SAMPLES")
+@case("TOO_MANY_SAMPLES", lambda: M.TOO_MANY_SAMPLES.format(
+    count=worklimits.MAX_BOARDS + 1, limit=worklimits.MAX_BOARDS))
 def _(env):
     from pinlib.studies.whatif import MAX_BOARDS, monte_carlo
     return _fails(lambda e: monte_carlo(e.design(I2C_BUS), MAX_BOARDS + 1), env)

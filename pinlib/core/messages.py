@@ -138,12 +138,16 @@ BUS_NEEDS_SUPPLY = "a bus needs its supply"
 UNKNOWN_SPI_SIGNAL = "unknown SPI signal"
 SPI_NEEDS_CLOCK = "an SPI bus needs its clock"
 SPI_NEEDS_SCLK = "an SPI bus needs its SCLK routing"
+# the limits of pinlib/core/worklimits.py
+TOO_MANY_DEVICES = "too many devices on one {protocol} bus: {count:,} (at most {limit:,})"
+TOO_MANY_SECTIONS = "too many sections on one trace: {count:,} (at most {limit:,})"
 
 # ---------------------------------------------------------------- pinlib/cli/commands/
 NO_FOLDER_FOR_NEW_PART = "no folder to write the new part into"
 PART_DOES_NOT_LOAD = "the part does not load"
 LIBRARY_HAS_PROBLEMS = ("{n} problem(s) in the library (run 'pinlib parts check'); parts "
                         "with problems are left out")
+INTERRUPTED = "interrupted (Ctrl-C): stopped"
 SUBSTITUTION_FORM = "a substitution is REF=PART"
 SUBSTITUTED_TWICE = "one reference substituted twice"
 DESIGN_CHANGED_DURING_SWAP = ("the design file changed while it was being evaluated; "
@@ -269,7 +273,7 @@ NOT_A_PROPORTION = "not a proportion"
 NOT_A_CONFIDENCE = "not a confidence level"
 TOO_FEW_SAMPLES = "too few samples"
 CHUNK_NOT_POSITIVE = "chunk must be positive"
-TOO_MANY_SAMPLES = "too many boards for one run"
+TOO_MANY_SAMPLES = "too many boards for one run: {count:,} (at most {limit:,})"
 # pinlib/present/plotdata.py
 DRAWN_FOR_PROTOCOLS = "{what} is drawn for {protocols} buses"
 NO_EVALUATED_LINE = "no evaluated line of that name on the bus"

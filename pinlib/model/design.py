@@ -27,6 +27,11 @@ from pinlib.core.errors import DesignError, PinlibError
 from pinlib.core.quantity import format_si, parse
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_index, line_of, load
+from pinlib.core.worklimits import (
+    MAX_DEVICES_OPEN_DRAIN,
+    MAX_DEVICES_PUSH_PULL,
+    MAX_SECTIONS_PER_LINE,
+)
 from pinlib.library.loader import Library, load_library, pydantic_errors
 from pinlib.library.schema import Part
 
@@ -439,6 +444,11 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
         return Device(d.ref, part_id, part, role, d.supply, d.switched, d.series_resistor,
                       d.side, d.internal_pullups, d.pin, d.capacitance_tolerance, loc)
 
+    def too_many_sections(count, loc):
+        return err(M.TOO_MANY_SECTIONS.format(count=count, limit=MAX_SECTIONS_PER_LINE), loc,
+                   value=count, expected=f"at most {MAX_SECTIONS_PER_LINE} sections",
+                   hint="join stretches of one geometry into one (their lengths add up)")
+
     def sections(t: RawTrace | RawSection | None, loc) -> tuple[Section, ...]:
         if t is None:
             return ()
@@ -446,10 +456,12 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
         if subs:
             if t.length is not None or t.geometry or t.capacitance or t.part:
                 raise err(M.SECTIONS_OR_STRETCH, loc + ("sections",))
-            out = ()
+            if len(subs) > MAX_SECTIONS_PER_LINE:  # before building any of them
+                raise too_many_sections(len(subs), loc + ("sections",))
+            out: list[Section] = []
             for i, s in enumerate(subs):
-                out += sections(s, loc + ("sections", i))
-            return out
+                out.extend(sections(s, loc + ("sections", i)))
+            return tuple(out)
         if t.length is None:
             raise err(M.TRACE_NEEDS_LENGTH, loc + ("length",))
         if t.part:
@@ -493,6 +505,7 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
     ids = set()
     for bi, rb in enumerate(raw.bus):
         bloc = ("bus", bi)
+        _refuse_too_many_devices(rb, bloc, err)
         if rb.id in ids:
             raise err(M.DUPLICATE_BUS_ID, bloc + ("id",), value=rb.id)
         ids.add(rb.id)
@@ -524,6 +537,22 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
                     raw.warn_margin, raw.distribution, raw.description, text)
     object.__setattr__(design, "_raw", raw)
     return design
+
+
+def _refuse_too_many_devices(rb: RawBus, bloc, err) -> None:
+    """Refuse a bus with more devices than :mod:`pinlib.core.worklimits` allows, before
+    any of them is built (the limit's reasons are there)."""
+    if protocols.is_open_drain(rb.protocol):
+        limit = MAX_DEVICES_OPEN_DRAIN
+        count = len(rb.devices) + sum(len(rs.devices) for rs in rb.segment)
+    else:
+        limit = MAX_DEVICES_PUSH_PULL
+        count = len(rb.devices)
+    if count > limit:
+        loc = bloc + ("devices",) if rb.devices or not rb.segment else bloc + ("segment",)
+        raise err(M.TOO_MANY_DEVICES.format(protocol=rb.protocol, count=count, limit=limit),
+                  loc, value=count, expected=f"at most {limit:,} devices on one bus",
+                  hint="split the devices over several buses")
 
 
 _SEGMENT_KEYS = ("supply", "supply_tolerance", "pullup", "pullup_tolerance", "pullup_series",
