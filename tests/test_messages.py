@@ -806,9 +806,7 @@ def _(env):
     return _fails(lambda e: e.design(SPI_BUS.replace("lines.sclk", "lines.cs")), env)
 
 
-@case("TOO_MANY_DEVICES", lambda: M.TOO_MANY_DEVICES.format(
-    protocol="spi", count=worklimits.MAX_DEVICES_PUSH_PULL + 1,
-    limit=worklimits.MAX_DEVICES_PUSH_PULL))
+@case("TOO_MANY_DEVICES", M.TOO_MANY_DEVICES.format(protocol="spi"))
 def _(env):
     many = "".join(f'  {{ ref = "P{i}", part = "nor-flash-spi" }},\n'
                    for i in range(worklimits.MAX_DEVICES_PUSH_PULL - 1))
@@ -816,8 +814,7 @@ def _(env):
                   env)
 
 
-@case("TOO_MANY_SECTIONS", lambda: M.TOO_MANY_SECTIONS.format(
-    count=worklimits.MAX_SECTIONS_PER_LINE + 1, limit=worklimits.MAX_SECTIONS_PER_LINE))
+@case("TOO_MANY_SECTIONS")
 def _(env):
     stretch = '{ length = "1 mm", geometry = "g" }'
     many = ", ".join([stretch] * (worklimits.MAX_SECTIONS_PER_LINE + 1))
@@ -1478,8 +1475,7 @@ def _(env):
     return _fails(lambda e: monte_carlo(e.design(I2C_BUS), 0), env)
 
 
-@case("TOO_MANY_SAMPLES", lambda: M.TOO_MANY_SAMPLES.format(
-    count=worklimits.MAX_BOARDS + 1, limit=worklimits.MAX_BOARDS))
+@case("TOO_MANY_SAMPLES")
 def _(env):
     from pinlib.studies.whatif import MAX_BOARDS, monte_carlo
     return _fails(lambda e: monte_carlo(e.design(I2C_BUS), MAX_BOARDS + 1), env)

@@ -139,8 +139,8 @@ UNKNOWN_SPI_SIGNAL = "unknown SPI signal"
 SPI_NEEDS_CLOCK = "an SPI bus needs its clock"
 SPI_NEEDS_SCLK = "an SPI bus needs its SCLK routing"
 # the limits of pinlib/core/worklimits.py
-TOO_MANY_DEVICES = "too many devices on one {protocol} bus: {count:,} (at most {limit:,})"
-TOO_MANY_SECTIONS = "too many sections on one trace: {count:,} (at most {limit:,})"
+TOO_MANY_DEVICES = "too many devices on one {protocol} bus"
+TOO_MANY_SECTIONS = "too many sections on one trace"
 
 # ---------------------------------------------------------------- pinlib/cli/commands/
 NO_FOLDER_FOR_NEW_PART = "no folder to write the new part into"
@@ -273,7 +273,7 @@ NOT_A_PROPORTION = "not a proportion"
 NOT_A_CONFIDENCE = "not a confidence level"
 TOO_FEW_SAMPLES = "too few samples"
 CHUNK_NOT_POSITIVE = "chunk must be positive"
-TOO_MANY_SAMPLES = "too many boards for one run: {count:,} (at most {limit:,})"
+TOO_MANY_SAMPLES = "too many boards for one run"
 # pinlib/present/plotdata.py
 DRAWN_FOR_PROTOCOLS = "{what} is drawn for {protocols} buses"
 NO_EVALUATED_LINE = "no evaluated line of that name on the bus"

@@ -22,20 +22,22 @@ __all__ = ["MAX_BOARDS", "MAX_DEVICES_OPEN_DRAIN", "MAX_DEVICES_PUSH_PULL",
 #: Devices on one I2C or SMBus bus, over all its segments.  A 10-bit address space has
 #: 1024 addresses (published: I2C-bus specification UM10204, 10-bit addressing), so a
 #: bus with more devices cannot address them all.  The open-drain engine's time grows
-#: linearly with the devices (4,000 devices take under 2 s); at 10^5 it took 211 s.
+#: linearly with the devices (1,024 take about 1 s and 60 MB); 10^5 took 211 s.
 MAX_DEVICES_OPEN_DRAIN = 1024
 
 #: Devices on one SPI or GPIO bus.  Each SPI peripheral has its own chip select, and a
 #: controller has a few dozen at most (common practice, no source).  The push-pull engine
 #: checks every driver of a line into every other pin on it, so its time grows with the
-#: square of the devices: 300 take about 6 s, 10^4 took 151 s and 10^5 never finished.
+#: square of the devices: 256 take about 2 s and 360 MB, 10^4 took 151 s and 10^5 never
+#: finished.
 MAX_DEVICES_PUSH_PULL = 256
 
-#: Stretches (sections) of one trace, after nested ``sections`` are flattened.  A routed
+#: Stretches (``sections``) of one trace or line.  A routed
 #: trace changes layer, width or connector a handful of times (common practice, no
 #: source).  The waveform of a line with a series resistor to choose is solved over all
-#: its junctions with a time step below the shortest stretch's delay: 30 one-millimetre
-#: stretches take about 3 s, 100 took 39 s and 2.6 GB, 10^4 tried to allocate 51 GiB.
+#: its junctions with a time step below the shortest stretch's delay: 32 one-millimetre
+#: stretches on each of four lines take about 2 s and 280 MB, 100 took 39 s and 2.6 GB, 10^4
+#: tried to allocate 51 GiB.
 MAX_SECTIONS_PER_LINE = 32
 
 #: Boards drawn by one Monte Carlo run.  Memory does not grow with it (the boards are

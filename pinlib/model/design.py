@@ -445,8 +445,8 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
                       d.side, d.internal_pullups, d.pin, d.capacitance_tolerance, loc)
 
     def too_many_sections(count, loc):
-        return err(M.TOO_MANY_SECTIONS.format(count=count, limit=MAX_SECTIONS_PER_LINE), loc,
-                   value=count, expected=f"at most {MAX_SECTIONS_PER_LINE} sections",
+        return err(M.TOO_MANY_SECTIONS, loc, value=f"{count:,} sections",
+                   expected=f"at most {MAX_SECTIONS_PER_LINE:,} sections",
                    hint="join stretches of one geometry into one (their lengths add up)")
 
     def sections(t: RawTrace | RawSection | None, loc) -> tuple[Section, ...]:
@@ -550,8 +550,8 @@ def _refuse_too_many_devices(rb: RawBus, bloc, err) -> None:
         count = len(rb.devices)
     if count > limit:
         loc = bloc + ("devices",) if rb.devices or not rb.segment else bloc + ("segment",)
-        raise err(M.TOO_MANY_DEVICES.format(protocol=rb.protocol, count=count, limit=limit),
-                  loc, value=count, expected=f"at most {limit:,} devices on one bus",
+        raise err(M.TOO_MANY_DEVICES.format(protocol=rb.protocol), loc,
+                  value=f"{count:,} devices", expected=f"at most {limit:,} devices on one bus",
                   hint="split the devices over several buses")
 
 

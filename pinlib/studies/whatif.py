@@ -839,8 +839,7 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
     if n < 1:
         raise InputError(M.TOO_FEW_SAMPLES, field="monte-carlo", value=n, expected="at least 1")
     if n > MAX_BOARDS:
-        raise InputError(M.TOO_MANY_SAMPLES.format(count=n, limit=MAX_BOARDS),
-                         field="monte-carlo", value=n,
+        raise InputError(M.TOO_MANY_SAMPLES, field="monte-carlo", value=f"{n:,} boards",
                          expected=f"at most {MAX_BOARDS:,} boards",
                          hint="split the run over several seeds and add the counts")
     if chunk < 1:
