@@ -388,6 +388,7 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
     if data.get("format") != FORMAT:
         raise DesignError(M.NOT_A_DESIGN, field="format", value=data.get("format"),
                           expected=f'format = "{FORMAT}"', **at(("format",)))
+    _refuse_too_many_devices(data, at)  # before validating what would not be checked
     try:
         raw = RawDesign.model_validate(data)
     except ValidationError as exc:
@@ -402,11 +403,12 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
         if missing:
             raise DesignError(M.DESIGN_LIBRARY_MISSING,
                               field="library", value=missing[0].file, **at(("library",)))
-    return _build(raw, path, library, text, swaps or {})
+    return _build(raw, path, library, text, swaps or {}, index)
 
 
-def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> Design:
-    index = line_index(text)
+def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict,
+           index: dict | None = None) -> Design:
+    index = line_index(text) if index is None else index
     fname = str(path) if path else None
 
     def err(problem, loc, **kw):
@@ -505,7 +507,6 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
     ids = set()
     for bi, rb in enumerate(raw.bus):
         bloc = ("bus", bi)
-        _refuse_too_many_devices(rb, bloc, err)
         if rb.id in ids:
             raise err(M.DUPLICATE_BUS_ID, bloc + ("id",), value=rb.id)
         ids.add(rb.id)
@@ -539,20 +540,35 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
     return design
 
 
-def _refuse_too_many_devices(rb: RawBus, bloc, err) -> None:
-    """Refuse a bus with more devices than :mod:`pinlib.core.worklimits` allows, before
-    any of them is built (the limit's reasons are there)."""
-    if protocols.is_open_drain(rb.protocol):
-        limit = MAX_DEVICES_OPEN_DRAIN
-        count = len(rb.devices) + sum(len(rs.devices) for rs in rb.segment)
-    else:
-        limit = MAX_DEVICES_PUSH_PULL
-        count = len(rb.devices)
-    if count > limit:
-        loc = bloc + ("devices",) if rb.devices or not rb.segment else bloc + ("segment",)
-        raise err(M.TOO_MANY_DEVICES.format(protocol=rb.protocol), loc,
-                  value=f"{count:,} devices", expected=f"at most {limit:,} devices on one bus",
-                  hint="split the devices over several buses")
+def _refuse_too_many_devices(data: dict, at) -> None:
+    """Refuse a bus with more devices than :mod:`pinlib.core.worklimits` allows (the
+    limit's reasons are there), from the file's tables before they are validated: a bus of
+    10^5 devices is refused in the time it takes to read it.  Anything not shaped like a
+    bus is left to the validation that follows."""
+    buses = data.get("bus")
+    if not isinstance(buses, list):
+        return
+    for bi, rb in enumerate(buses):
+        if not isinstance(rb, dict):
+            continue
+        own = rb.get("devices") if isinstance(rb.get("devices"), list) else []
+        segments = rb.get("segment") if isinstance(rb.get("segment"), list) else []
+        protocol = rb.get("protocol")
+        if not isinstance(protocol, str) or protocol not in protocols.NAMES:
+            continue  # the validation names the protocol that is wrong
+        if protocols.is_open_drain(protocol):
+            limit = MAX_DEVICES_OPEN_DRAIN
+            count = len(own) + sum(len(rs["devices"]) for rs in segments
+                                   if isinstance(rs, dict) and isinstance(rs.get("devices"), list))
+        else:
+            limit = MAX_DEVICES_PUSH_PULL
+            count = len(own)
+        if count > limit:
+            loc = ("bus", bi, "devices") if own or not segments else ("bus", bi, "segment")
+            raise DesignError(M.TOO_MANY_DEVICES.format(protocol=protocol), field=dotted_path(loc),
+                              value=f"{count:,} devices",
+                              expected=f"at most {limit:,} devices on one bus",
+                              hint="split the devices over several buses", **at(loc))
 
 
 _SEGMENT_KEYS = ("supply", "supply_tolerance", "pullup", "pullup_tolerance", "pullup_series",
