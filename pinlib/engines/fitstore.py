@@ -112,9 +112,13 @@ class FitStore(MutableMapping):
 
     def _verified(self, key, entry) -> bool:
         """True for an entry whose digest matches its key and content under this version."""
-        return (isinstance(key, str) and isinstance(entry, dict)
-                and isinstance(entry.get("fit"), dict)
-                and entry.get("digest") == entry_digest(key, entry["fit"], self.version))
+        if not (isinstance(key, str) and isinstance(entry, dict)
+                and isinstance(entry.get("fit"), dict)):
+            return False
+        try:
+            return entry.get("digest") == entry_digest(key, entry["fit"], self.version)
+        except (ValueError, RecursionError):  # content json cannot write back
+            return False
 
     def _all(self) -> dict:
         if self._fits is None:
