@@ -154,6 +154,8 @@ class FitStore(MutableMapping):
             self.path.parent.mkdir(parents=True, exist_ok=True)
             with file_lock(self.path):
                 fits = {**self._read(), **self._new}
+                if len(fits) > MAX_FITS:
+                    fits = dict(list(fits.items())[-MAX_FITS:])
                 text = self._text(fits)
                 while len(text.encode("utf-8")) > MAX_BYTES and fits:
                     fits = dict(list(fits.items())[len(fits) // 4 + 1:])  # oldest first
@@ -166,9 +168,7 @@ class FitStore(MutableMapping):
 
 
     def _text(self, fits: dict) -> str:
-        """The file's text for ``fits`` (the newest MAX_FITS), each entry with its digest."""
-        if len(fits) > MAX_FITS:
-            fits = dict(list(fits.items())[-MAX_FITS:])
+        """The file's text for ``fits``, each entry with its digest."""
         entries = {key: {"digest": entry_digest(key, fit, self.version), "fit": fit}
                    for key, fit in fits.items()}
         # allow_nan=False: a fit with a non-finite number is refused, not written
