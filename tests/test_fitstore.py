@@ -231,3 +231,13 @@ def test_the_command_gives_the_same_result_whatever_the_store_holds(tmp_path):
     damaged = subprocess.run(cmd, capture_output=True, text=True, env=env)
     assert (cold.returncode, cold.stdout) == (damaged.returncode, damaged.stdout)
     assert "Traceback" not in damaged.stderr
+
+
+def test_the_newest_fits_are_kept_up_to_max_fits(store, monkeypatch):
+    monkeypatch.setattr(fitstore, "MAX_FITS", 3)
+    for k in range(5):
+        driver.fit_driver(LOADS, [t * (1 + 0.01 * k) for t in TIMES])
+    newest = list(store._new)[-3:]
+    assert store.flush()
+    data = json.loads(store.path.read_text(encoding="utf-8"))
+    assert sorted(data["fits"]) == sorted(newest) and sorted(store._fits) == sorted(newest)
