@@ -493,7 +493,8 @@ KNOWN = [
     pytest.param(_supply_min_zero, id="14.4-supply-min-0",
                  marks=pytest.mark.xfail(strict=False, reason="issue 14 item 4: "
                                          "ZeroDivisionError in the open-drain engine "
-                                         "(input hardening)")),
+                                         "(input hardening; this part already gives a "
+                                         "result here)")),
     pytest.param(_damaged_snapshot, id="14.5-damaged-snapshot",
                  marks=pytest.mark.xfail(strict=False, reason="issue 14 item 5: a damaged "
                                          "snapshot raises inside the change list "
