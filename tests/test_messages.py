@@ -19,6 +19,7 @@ import pytest
 
 from pinlib.cli import main
 from pinlib.core import messages as M
+from pinlib.core import worklimits
 from pinlib.core.errors import PinlibError
 from pinlib.core.quantity import parse, parse_threshold
 from pinlib.core.tomlfile import atomic_write, file_lock, tomllib
@@ -175,6 +176,19 @@ def _(env):
         with file_lock(e.tmp / "missing-folder" / "x.toml"):
             pass
     return _fails(lock, env)
+
+
+@case("LOCK_IS_A_LINK", M.CANNOT_LOCK.format(
+    reason=M.LOCK_IS_A_LINK.format(lock=".x.toml.lock")))
+def _(env):
+    (env.tmp / ".x.toml.lock").symlink_to(env.tmp / "elsewhere")
+
+    def lock(e):
+        with file_lock(e.tmp / "x.toml"):
+            pass
+    got = _fails(lock, env)
+    assert not (env.tmp / "elsewhere").exists()  # the link was not followed
+    return got
 
 
 @case("CANNOT_WRITE_IN_FOLDER", M.CANNOT_WRITE_IN_FOLDER.format(reason=os.strerror(errno.ENOENT)))
@@ -1006,7 +1020,39 @@ def _(env):
     return _fails(lambda e: e.design(SPI_BUS.replace("lines.sclk", "lines.cs")), env)
 
 
+@case("TOO_MANY_DEVICES", M.TOO_MANY_DEVICES.format(protocol="spi"))
+def _(env):
+    many = "".join(f'  {{ ref = "P{i}", part = "nor-flash-spi" }},\n'
+                   for i in range(worklimits.MAX_DEVICES_PUSH_PULL - 1))
+    return _fails(lambda e: e.design(SPI_BUS.replace("devices = [\n", "devices = [\n" + many)),
+                  env)
+
+
+@case("TOO_MANY_SECTIONS")
+def _(env):
+    stretch = '{ length = "1 mm", geometry = "g" }'
+    many = ", ".join([stretch] * (worklimits.MAX_SECTIONS_PER_LINE + 1))
+    return _fails(lambda e: e.design(SPI_BUS.replace(
+        'lines.sclk = { length = "3 cm", geometry = "g" }',
+        f"lines.sclk = {{ sections = [{many}] }}")), env)
+
+
 # ---------------------------------------------------------------- commands
+@case("INTERRUPTED")
+def _(env):
+    from pinlib.cli.commands import check
+
+    def stop(args):
+        raise KeyboardInterrupt
+
+    env.monkeypatch.setattr(check, "run", stop)
+    design = env.write("design.toml", HEAD + I2C_BUS)
+    code = main(["check", str(design)])
+    err = env.capsys.readouterr().err
+    assert code == 130 and "Traceback" not in err
+    return err
+
+
 @case("NO_FOLDER_FOR_NEW_PART")
 def _(env):
     return env.cli("parts", "new", "fresh", "--from", "eeprom-i2c")
@@ -1701,7 +1747,9 @@ def _(env):
 @case("BUDGET_DOES_NOT_ADD_UP")
 def _(env):
     plotdata = _plotdata()
-    env.monkeypatch.setattr(plotdata, "BUDGET_COMPONENTS", {
+    from pinlib.present.plotdata import budget  # the module that reads the table
+
+    env.monkeypatch.setattr(budget, "BUDGET_COMPONENTS", {
         k: [(key, -sign, comp) for key, sign, comp in v]
         for k, v in plotdata.BUDGET_COMPONENTS.items()})
     body = SPI_BUS + 'lines.copi = { length = "3 cm", geometry = "g" }\n' \

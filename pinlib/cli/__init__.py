@@ -74,8 +74,23 @@ def entry() -> int:
 
 
 def main(argv: list[str] | None = None) -> int:
-    with pydantic_plugins_off():  # pinlib.cli.startup: why, and how a user keeps them
-        return _main(argv)
+    """Run one command; Ctrl-C at any point (imports, argument parsing, long work) ends it
+    with one line on standard error and exit code 130 (128 + SIGINT), never a traceback."""
+    try:
+        with pydantic_plugins_off():  # pinlib.cli.startup: why, and how a user keeps them
+            return _main(argv)
+    except KeyboardInterrupt:
+        return _interrupted()
+
+
+def _interrupted() -> int:
+    from pinlib.core import messages as M
+
+    try:
+        print(f"\npinlib: {M.INTERRUPTED}", file=sys.stderr)
+    except (OSError, ValueError):
+        pass
+    return 130
 
 
 def _main(argv: list[str] | None) -> int:
@@ -93,8 +108,7 @@ def _main(argv: list[str] | None) -> int:
         print(f"pinlib: error: {err.message}", file=sys.stderr)
         return 2
     except KeyboardInterrupt:
-        print("pinlib: interrupted", file=sys.stderr)
-        return 130
+        return _interrupted()
     except BrokenPipeError:
         return 0
 

@@ -44,6 +44,7 @@ NOT_UTF8 = "not UTF-8 text"
 CANNOT_READ = "cannot read the file: {reason}"
 NOT_TOML = "not valid TOML: {detail}"
 CANNOT_LOCK = "cannot lock the file: {reason}"
+LOCK_IS_A_LINK = "its lock file {lock} is a symbolic link, which pinlib does not follow"
 CANNOT_WRITE_IN_FOLDER = "cannot write in this folder: {reason}"
 CANNOT_WRITE_FILE = "cannot write the file: {reason}"
 
@@ -159,6 +160,9 @@ BUS_NEEDS_SUPPLY = "a bus needs its supply"
 UNKNOWN_SPI_SIGNAL = "unknown SPI signal"
 SPI_NEEDS_CLOCK = "an SPI bus needs its clock"
 SPI_NEEDS_SCLK = "an SPI bus needs its SCLK routing"
+# the limits of pinlib/core/worklimits.py
+TOO_MANY_DEVICES = "too many devices on one {protocol} bus"
+TOO_MANY_SECTIONS = "too many sections on one trace"
 
 # ---------------------------------------------------------------- pinlib/cli/commands/
 NO_FOLDER_FOR_NEW_PART = "no folder to write the new part into"
@@ -166,6 +170,7 @@ PART_DOES_NOT_LOAD = "the part does not load"
 LIBRARY_HAS_PROBLEMS = ("{n} problem(s) in the library (run 'pinlib parts check'); parts "
                         "with problems are left out")
 FIRST_PROBLEM = "the first: {message}"
+INTERRUPTED = "interrupted (Ctrl-C): stopped"
 SUBSTITUTION_FORM = "a substitution is REF=PART"
 SUBSTITUTED_TWICE = "one reference substituted twice"
 DESIGN_CHANGED_DURING_SWAP = ("the design file changed while it was being evaluated; "

@@ -147,12 +147,17 @@ def file_lock(target: str | os.PathLike):
     """Hold an exclusive advisory lock beside ``target`` (``.name.lock``) while writing.
 
     Two processes recording into one file take turns; each reads the file afresh
-    inside the lock, so neither overwrites the other's value.
+    inside the lock, so neither overwrites the other's value.  A lock file that is a
+    symbolic link is not followed (pinlib never makes one; opening it would create or
+    lock whatever it points to): the write is refused.
     """
     target = Path(target)
     lock_path = target.with_name(f".{target.name}.lock")
+    if lock_path.is_symlink():
+        raise WriteError(M.CANNOT_LOCK.format(reason=M.LOCK_IS_A_LINK.format(
+            lock=lock_path.name)), file=str(target))
     try:
-        fd = os.open(lock_path, os.O_RDWR | os.O_CREAT, 0o644)
+        fd = os.open(lock_path, os.O_RDWR | os.O_CREAT | getattr(os, "O_NOFOLLOW", 0), 0o644)
     except OSError as exc:
         raise WriteError(M.CANNOT_LOCK.format(reason=exc.strerror), file=str(target)) from None
     try:

@@ -15,10 +15,22 @@ reads them back on the next run:
 * **Where.**  ``$PINLIB_CACHE_DIR/fits.json``; without it ``$XDG_CACHE_HOME/pinlib``, else
   ``~/.cache/pinlib``.  ``PINLIB_CACHE_DIR=off`` (or empty) keeps fits for the process
   only.
-* **Writes.**  Once, when the command ends, under the file's lock and atomically
-  (:func:`pinlib.core.tomlfile.atomic_write`), merging what another run stored meanwhile.  A
-  folder that cannot be written, or a damaged file, only costs the fits being computed
-  again: nothing is reported and nothing else changes.
+* **Trust.**  The file is a cache anyone can edit, so nothing in it is taken on faith.
+  Each entry carries a digest of its key and content under this code's version
+  (:func:`entry_digest`); an entry whose digest does not match, or whose numbers are
+  not finite, is dropped as it is read.  :func:`pinlib.physics.driver.fit_driver`
+  then checks what is left against the fit's own inputs (the method, a fixed ``r_out``,
+  the same bounds as a fresh fit, the residuals recomputed from the stored ``r_out``
+  and ``t_ramp``) and fits again when any of it disagrees.  Deleting or damaging the
+  file therefore never changes a result, only the time it takes.
+* **Size.**  A file over :data:`MAX_BYTES` (or not a regular file) is not read: the
+  store starts empty and the next write replaces it.  At most :data:`MAX_FITS` entries
+  are kept, the oldest dropped first, and a written file stays under :data:`MAX_BYTES`.
+* **Writes.**  Once, when the command ends, under the file's lock (a lock file that is
+  a symbolic link is not followed: the write is skipped) and atomically
+  (:func:`pinlib.core.tomlfile.atomic_write`), merging what another run stored
+  meanwhile.  A folder that cannot be written, or a damaged file, only costs the fits
+  being computed again: nothing is reported and nothing else changes.
 
 Only the command line installs the store (:func:`install`); pinlib used from Python or a
 notebook keeps fits for the process, as before.
@@ -30,14 +42,20 @@ import atexit
 import hashlib
 import json
 import os
+import stat
 from collections.abc import Iterator, MutableMapping
 from pathlib import Path
 
-__all__ = ["FORMAT", "MAX_FITS", "FitStore", "code_version", "default_path", "install"]
+__all__ = ["FORMAT", "MAX_BYTES", "MAX_FITS", "FitStore", "code_version", "default_path",
+           "entry_digest", "install"]
 
-FORMAT = "pinlib.fits/1"
+FORMAT = "pinlib.fits/2"
 #: Fits kept in the file; the oldest go first.
 MAX_FITS = 2000
+#: Largest file read or written [bytes]: 2000 fits of a few points with their notes take
+#: well under 1 MB; a larger file was not written by pinlib, and reading it in full
+#: every run would cost more than fitting again (common practice, no source).
+MAX_BYTES = 4 * 2**20
 
 
 def code_version() -> str:
@@ -79,14 +97,28 @@ class FitStore(MutableMapping):
         self._new: dict = {}
 
     def _read(self) -> dict:
+        text = _read_capped(self.path)
+        if text is None:
+            return {}
         try:
-            data = json.loads(self.path.read_text(encoding="utf-8"))
-        except (OSError, ValueError):
+            data = json.loads(text, parse_constant=_no_constant)
+        except (ValueError, RecursionError):
             return {}
         if not isinstance(data, dict) or data.get("format") != FORMAT \
                 or data.get("version") != self.version or not isinstance(data.get("fits"), dict):
             return {}
-        return data["fits"]
+        return {key: entry["fit"] for key, entry in data["fits"].items()
+                if self._verified(key, entry)}
+
+    def _verified(self, key, entry) -> bool:
+        """True for an entry whose digest matches its key and content under this version."""
+        if not (isinstance(key, str) and isinstance(entry, dict)
+                and isinstance(entry.get("fit"), dict)):
+            return False
+        try:
+            return entry.get("digest") == entry_digest(key, entry["fit"], self.version)
+        except (ValueError, RecursionError):  # content json cannot write back
+            return False
 
     def _all(self) -> dict:
         if self._fits is None:
@@ -124,13 +156,63 @@ class FitStore(MutableMapping):
                 fits = {**self._read(), **self._new}
                 if len(fits) > MAX_FITS:
                     fits = dict(list(fits.items())[-MAX_FITS:])
-                atomic_write(self.path, json.dumps(
-                    {"format": FORMAT, "version": self.version, "fits": fits},
-                    sort_keys=True) + "\n")
-        except (OSError, PinlibError):
+                text = self._text(fits)
+                while len(text.encode("utf-8")) > MAX_BYTES and fits:
+                    fits = dict(list(fits.items())[len(fits) // 4 + 1:])  # oldest first
+                    text = self._text(fits)
+                atomic_write(self.path, text)
+        except (OSError, PinlibError, ValueError):
             return False  # a cache: the next run computes the fits again
         self._fits, self._new = fits, {}
         return True
+
+
+    def _text(self, fits: dict) -> str:
+        """The file's text for ``fits``, each entry with its digest."""
+        entries = {key: {"digest": entry_digest(key, fit, self.version), "fit": fit}
+                   for key, fit in fits.items()}
+        # allow_nan=False: a fit with a non-finite number is refused, not written
+        return json.dumps({"format": FORMAT, "version": self.version, "fits": entries},
+                          sort_keys=True, allow_nan=False) + "\n"
+
+
+def entry_digest(key: str, fit: dict, version: str) -> str:
+    """A digest of one entry: its key, its content and the code version that made it."""
+    body = json.dumps([version, key, fit], sort_keys=True, allow_nan=True)
+    return hashlib.sha256(body.encode("utf-8")).hexdigest()
+
+
+def _no_constant(name: str):
+    raise ValueError(f"{name} is not a number a fit can hold")
+
+
+def _read_capped(path: Path) -> str | None:
+    """The file's text, or None for a file that is missing, not regular or over MAX_BYTES.
+
+    Opened without blocking (a FIFO under the name does not hang the run) and read at
+    most one byte past the cap (a link to an endless device does not fill memory).
+    """
+    flags = os.O_RDONLY | getattr(os, "O_NONBLOCK", 0)
+    try:
+        fd = os.open(path, flags)
+    except OSError:
+        return None
+    try:
+        info = os.fstat(fd)
+        if not stat.S_ISREG(info.st_mode) or info.st_size > MAX_BYTES:
+            return None
+        with os.fdopen(fd, "rb", closefd=False) as fh:
+            raw = fh.read(MAX_BYTES + 1)
+    except OSError:
+        return None
+    finally:
+        os.close(fd)
+    if len(raw) > MAX_BYTES:
+        return None
+    try:
+        return raw.decode("utf-8")
+    except UnicodeDecodeError:
+        return None
 
 
 def install() -> FitStore | None:

@@ -27,6 +27,11 @@ from pinlib.core.errors import DesignError, PinlibError
 from pinlib.core.quantity import format_si, parse
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_index, line_of, load
+from pinlib.core.worklimits import (
+    MAX_DEVICES_OPEN_DRAIN,
+    MAX_DEVICES_PUSH_PULL,
+    MAX_SECTIONS_PER_LINE,
+)
 from pinlib.library.folders import require_folders
 from pinlib.library.loader import Library, load_library, pydantic_errors
 from pinlib.library.schema import Part
@@ -384,6 +389,7 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
     if data.get("format") != FORMAT:
         raise DesignError(M.NOT_A_DESIGN, field="format", value=data.get("format"),
                           expected=f'format = "{FORMAT}"', **at(("format",)))
+    _refuse_too_many_devices(data, at)  # before validating what would not be checked
     try:
         raw = RawDesign.model_validate(data)
     except ValidationError as exc:
@@ -404,11 +410,12 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
         require_folders(library_folders)
         library = load_library(own + [Path(p) for p in library_folders],
                                lazy=True)  # only the parts the design names
-    return _build(raw, path, library, text, swaps or {})
+    return _build(raw, path, library, text, swaps or {}, index)
 
 
-def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> Design:
-    index = line_index(text)
+def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict,
+           index: dict | None = None) -> Design:
+    index = line_index(text) if index is None else index
     fname = str(path) if path else None
 
     def err(problem, loc, **kw):
@@ -454,6 +461,11 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
         return Device(d.ref, part_id, part, role, d.supply, d.switched, d.series_resistor,
                       d.side, d.internal_pullups, d.pin, d.capacitance_tolerance, loc)
 
+    def too_many_sections(count, loc):
+        return err(M.TOO_MANY_SECTIONS, loc, value=f"{count:,} sections",
+                   expected=f"at most {MAX_SECTIONS_PER_LINE:,} sections",
+                   hint="join stretches of one geometry into one (their lengths add up)")
+
     def sections(t: RawTrace | RawSection | None, loc) -> tuple[Section, ...]:
         if t is None:
             return ()
@@ -461,10 +473,12 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
         if subs:
             if t.length is not None or t.geometry or t.capacitance or t.part:
                 raise err(M.SECTIONS_OR_STRETCH, loc + ("sections",))
-            out = ()
+            if len(subs) > MAX_SECTIONS_PER_LINE:  # before building any of them
+                raise too_many_sections(len(subs), loc + ("sections",))
+            out: list[Section] = []
             for i, s in enumerate(subs):
-                out += sections(s, loc + ("sections", i))
-            return out
+                out.extend(sections(s, loc + ("sections", i)))
+            return tuple(out)
         if t.length is None:
             raise err(M.TRACE_NEEDS_LENGTH, loc + ("length",))
         if t.part:
@@ -557,6 +571,37 @@ def _one_part_per_reference(buses, err, fname, index) -> None:
                           d.loc + ("ref",), value=d.ref, hint=also)
             if fb is bus and not (d.is_bridge and d.side != fd.side):
                 raise err(M.REFERENCE_TWICE_ON_BUS, d.loc + ("ref",), value=d.ref, hint=also)
+
+
+def _refuse_too_many_devices(data: dict, at) -> None:
+    """Refuse a bus with more devices than :mod:`pinlib.core.worklimits` allows (the
+    limit's reasons are there), from the file's tables before they are validated: a bus of
+    10^5 devices is refused in the time it takes to read it.  Anything not shaped like a
+    bus is left to the validation that follows."""
+    buses = data.get("bus")
+    if not isinstance(buses, list):
+        return
+    for bi, rb in enumerate(buses):
+        if not isinstance(rb, dict):
+            continue
+        own = rb.get("devices") if isinstance(rb.get("devices"), list) else []
+        segments = rb.get("segment") if isinstance(rb.get("segment"), list) else []
+        protocol = rb.get("protocol")
+        if not isinstance(protocol, str) or protocol not in protocols.NAMES:
+            continue  # the validation names the protocol that is wrong
+        if protocols.is_open_drain(protocol):
+            limit = MAX_DEVICES_OPEN_DRAIN
+            count = len(own) + sum(len(rs["devices"]) for rs in segments
+                                   if isinstance(rs, dict) and isinstance(rs.get("devices"), list))
+        else:
+            limit = MAX_DEVICES_PUSH_PULL
+            count = len(own)
+        if count > limit:
+            loc = ("bus", bi, "devices") if own or not segments else ("bus", bi, "segment")
+            raise DesignError(M.TOO_MANY_DEVICES.format(protocol=protocol), field=dotted_path(loc),
+                              value=f"{count:,} devices",
+                              expected=f"at most {limit:,} devices on one bus",
+                              hint="split the devices over several buses", **at(loc))
 
 
 _SEGMENT_KEYS = ("supply", "supply_tolerance", "pullup", "pullup_tolerance", "pullup_series",

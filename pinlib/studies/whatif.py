@@ -57,6 +57,7 @@ from statistics import NormalDist
 import numpy as np
 
 from pinlib.core import messages as M
+from pinlib.core import worklimits
 from pinlib.core.errors import InputError
 from pinlib.core.progress import progress_bar
 from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS, PUSH_PULL_PROTOCOLS
@@ -97,9 +98,8 @@ CONFIDENCE = 0.95
 #: whether a progress bar is shown).
 CHUNK = 25_000
 
-#: A run draws at most this many boards: beyond it, the counts are better had from
-#: several runs (seeds) added up than from one that takes hours.
-MAX_BOARDS = 100_000_000
+#: A run draws at most this many boards (:mod:`pinlib.core.worklimits` says why).
+MAX_BOARDS = worklimits.MAX_BOARDS
 
 #: Up to this many parameters on a bus, corners tries every vertex (2**k).
 EXHAUSTIVE_LIMIT = 12
@@ -841,7 +841,7 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
     if n < 1:
         raise InputError(M.TOO_FEW_SAMPLES, field="monte-carlo", value=n, expected="at least 1")
     if n > MAX_BOARDS:
-        raise InputError(M.TOO_MANY_SAMPLES, field="monte-carlo", value=n,
+        raise InputError(M.TOO_MANY_SAMPLES, field="monte-carlo", value=f"{n:,} boards",
                          expected=f"at most {MAX_BOARDS:,} boards",
                          hint="split the run over several seeds and add the counts")
     if chunk < 1:

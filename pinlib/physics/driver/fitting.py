@@ -145,13 +145,18 @@ def fit_driver(loads, times, levels="10-90", *, r_out=None, r_out_dc=None):
     uses_dc = r_out is None and len(conditions) < 2 and r_out_dc is not None
     key = (loads_a.tobytes(), times_a.tobytes(), tuple(names), r_fixed,
            r_dc if uses_dc else None)
-    cached = _recall(key)
-    if cached is not None:
-        return cached
+    if key in _memory()._FIT_CACHE:
+        return _replay(key)
 
     messages = _decreasing_points(loads_a, times_a, names)
     method, r_fixed, notes = _r_out_method(r_fixed, r_dc, len(conditions))
     problem = _Problem(loads_a, times_a, lo, hi)
+    store = _memory().FIT_STORE
+    if store is not None:
+        stored = _stored_fit(store.get(fit_key(key)), problem, method, r_fixed)
+        if stored is not None:
+            _memory()._FIT_CACHE[key] = stored
+            return _replay(key)
     found, x, r_fit, t_fit, box = _best_solution(problem, r_fixed, notes)
     model = problem.model(r_fit, t_fit)
     residuals = model - times_a
@@ -207,20 +212,55 @@ def _memory():
     return sys.modules[__package__]
 
 
-def _recall(key):
-    """The fit already made for ``key`` (warning again), or None."""
+def _replay(key) -> DriverFit:
+    """The fit made earlier for ``key``, its warnings issued again."""
     memory = _memory()
-    cached = memory._FIT_CACHE.get(key)
-    if cached is None and memory.FIT_STORE is not None:
-        cached = _from_record(memory.FIT_STORE.get(fit_key(key)))
-        if cached is not None:
-            memory._FIT_CACHE[key] = cached
-    if cached is None:
-        return None
     memory._FIT_CACHE.move_to_end(key)
+    while len(memory._FIT_CACHE) > memory._FIT_CACHE_SIZE:
+        memory._FIT_CACHE.popitem(last=False)
+    cached = memory._FIT_CACHE[key]
     for msg in cached.warnings:
         warnings.warn(msg, FitWarning, stacklevel=3)
     return replace(cached, residuals=cached.residuals.copy())
+
+
+#: The methods a stored fit may name; "least-squares" fits r_out, the others fix it.
+_METHODS = ("least-squares", "fixed-r_out", "from-levels", "default")
+
+
+def _stored_fit(record, problem, method, r_fixed) -> DriverFit | None:
+    """A stored fit that holds up against its own inputs, or None (then fit again).
+
+    The store is a file anyone can edit, so a record is taken only when it is the fit
+    these inputs would give: the same method, the fixed ``r_out`` when there is one, an
+    ``r_out`` and ``t_ramp`` inside the bounds a fresh fit searches, finite numbers, and
+    residuals and their RMS equal to those the model gives with the stored parameters.
+    """
+    fit = _from_record(record)
+    if fit is None or fit.method != method or fit.method not in _METHODS:
+        return None
+    r, t = fit.r_out, fit.t_ramp
+    if not (math.isfinite(r) and math.isfinite(t) and math.isfinite(fit.rms_residual)):
+        return None
+    if r_fixed is not None:
+        if r != r_fixed:
+            return None
+    else:
+        # the fit's search box in ln r_out, widened by rounding of exp(log(...))
+        r_lo = float(problem.r_out(problem.lower[0])) * (1 - 1e-9)
+        r_hi = float(problem.r_out(problem.upper[0])) * (1 + 1e-9)
+        if not r_lo <= r <= r_hi:
+            return None
+    if not 0.0 <= t <= float(problem.upper[1] * problem.t_ref) * (1 + 1e-9):
+        return None
+    if fit.residuals.shape != problem.times.shape:
+        return None
+    residuals = problem.model(r, t) - problem.times
+    if not np.array_equal(residuals, fit.residuals):
+        return None
+    if fit.rms_residual != float(np.sqrt(np.mean(residuals * residuals))):
+        return None
+    return fit
 
 
 def _remember(key, fit: DriverFit) -> None:

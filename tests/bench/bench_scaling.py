@@ -1,0 +1,156 @@
+"""Scaling lines: how the cost grows with the size of the input (issue 14).
+
+Each line times one input and the same input made k times larger, in this process, and
+prints the ratio: k means the cost grows linearly.  The inputs (invented test data):
+
+* a valid design whose ``description`` is a long string (the loader locates the lines
+  of the values after it);
+* devices on one I2C bus and on one SPI bus, loaded and checked;
+* sections of one SPI line with a series resistor to choose, loaded and checked;
+* Monte Carlo boards, with the peak of traced memory as well (1 = bounded).
+
+The push-pull engine checks every driver into the pins of every other device, so the
+SPI device line has a part that grows with the square of the devices (small up to the
+limit, :data:`pinlib.core.worklimits.MAX_DEVICES_PUSH_PULL`, dominant far beyond it): it
+is printed without a target.  A target ``< 2k`` separates linear (k) from quadratic (k²).
+"""
+
+from __future__ import annotations
+
+import tempfile
+import time
+import tracemalloc
+import warnings
+from pathlib import Path
+
+from pinlib.core.errors import PinlibError
+from pinlib.engines.dispatch import check_design
+from pinlib.model.design import load_design
+from pinlib.studies.whatif import monte_carlo
+from tests.bench.common import Result, median_time
+
+__all__ = ["run"]
+
+HEAD = """\
+format = "pinlib.design/1"
+title = "scaling benchmark (generated)"
+description = {description}
+
+[board.geometry.g]
+kind = "microstrip"
+width = "0.2 mm"
+height = "0.18 mm"
+er = 4.2
+"""
+
+
+def _design(body: str, description: str = '"generated"') -> str:
+    return HEAD.format(description=description) + body
+
+
+def _i2c(n: int) -> str:
+    devices = "".join(f'  {{ ref = "T{i}", part = "eeprom-i2c" }},\n' for i in range(n - 1))
+    return _design(f"""
+[[bus]]
+id = "b"
+protocol = "i2c"
+mode = "standard"
+supply = "3.3 V"
+supply_tolerance = "5 %"
+pullup = "auto"
+capacitance_tolerance = "10 %"
+trace = {{ length = "10 cm", geometry = "g" }}
+devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
+{devices}]
+""")
+
+
+def _spi(n: int, sections: int = 1) -> str:
+    devices = "".join(f'  {{ ref = "P{i}", part = "nor-flash-spi" }},\n' for i in range(n - 1))
+    stretch = '{ length = "1 cm", geometry = "g" }'
+    line = f'{{ sections = [{", ".join([stretch] * sections)}], series_resistor = "auto" }}'
+    return _design(f"""
+[[bus]]
+id = "s"
+protocol = "spi"
+clock = "1 MHz"
+supply = "3.3 V"
+devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
+{devices}]
+lines.sclk = {line}
+lines.copi = {line}
+lines.cipo = {{ length = "3 cm", geometry = "g" }}
+""")
+
+
+def _long_string(length: int) -> str:
+    body = _i2c(2).split('er = 4.2\n', 1)[1]
+    return _design(body, description='"' + "a" * length + '"')
+
+
+def _load_and_check(path: Path):
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        try:
+            return check_design(load_design(path))
+        except PinlibError as err:
+            return err
+
+
+def _scaling(name, small, large, k, tmp: Path, repeats: int, *, linear=True) -> Result:
+    a, b = tmp / f"{name}-small.toml", tmp / f"{name}-large.toml"
+    a.write_text(small, encoding="utf-8")
+    b.write_text(large, encoding="utf-8")
+    _load_and_check(a)  # imports, library, fits
+    t_small = median_time(lambda: _load_and_check(a), repeats, warmup=0)
+    t_large = median_time(lambda: _load_and_check(b), max(1, repeats // 2), warmup=0)
+    ratio = t_large / t_small
+    return Result(name, t_large, "1/" + str(k), t_small, ratio,
+                  f"for {k}x the size ({k} = linear)",
+                  target=f"< {2 * k} (linear)" if linear else "",
+                  passed=ratio < 2 * k if linear else None)
+
+
+def _monte_carlo(tmp: Path, n: int, k: int) -> Result:
+    path = tmp / "mc.toml"
+    path.write_text(_i2c(3), encoding="utf-8")
+    design = load_design(path)
+
+    def measure(boards):
+        tracemalloc.start()
+        start = time.perf_counter()
+        monte_carlo(design, boards, seed=1)
+        took = time.perf_counter() - start
+        peak = tracemalloc.get_traced_memory()[1]
+        tracemalloc.stop()
+        return took, peak
+
+    measure(1000)
+    t_small, m_small = measure(n)
+    t_large, m_large = measure(k * n)
+    ratio = t_large / t_small
+    return Result(f"Monte Carlo: {k * n:,} boards", t_large, f"{n:,} boards", t_small, ratio,
+                  f"for {k}x the boards ({k} = linear)", target=f"< {2 * k} (linear)",
+                  passed=ratio < 2 * k,
+                  extra=[f"peak traced memory {m_large / 2**20:.0f} MB against "
+                         f"{m_small / 2**20:.0f} MB ({m_large / m_small:.2f}x; 1 = bounded)"])
+
+
+def run(repeats: int = 3, quick: bool = False) -> list[Result]:
+    s = 4 if quick else 1  # quick: a quarter of each size
+    out = []
+    with tempfile.TemporaryDirectory(prefix="pinlib-bench-") as tmp:
+        tmp = Path(tmp)
+        out.append(_scaling(f"long string: {16000 // s:,} characters",
+                            _long_string(2000 // s), _long_string(16000 // s), 8, tmp, repeats))
+        out.append(_scaling(f"I2C bus: {1000 // s} devices", _i2c(100 // s), _i2c(1000 // s),
+                            10, tmp, repeats))
+        out.append(_scaling(f"SPI bus: {256 // s} devices", _spi(32 // s), _spi(256 // s),
+                            8, tmp, repeats, linear=False))
+        out.append(_scaling("SPI line: 32 sections, auto resistor", _spi(2, 8), _spi(2, 32),
+                            4, tmp, repeats))
+        # above whatif.SENSITIVITY_BOARDS (100,000), whose draws a run keeps
+        out.append(_monte_carlo(tmp, 120_000 if quick else 200_000, 4))
+    return out
