@@ -252,6 +252,15 @@ def _(env):
     return _fails(lambda e: parse_threshold("1e308 VDD + 1e308 VDD"), env)
 
 
+@case("QUANTITY_TOO_LONG", M.QUANTITY_TOO_LONG.format(n=2_000_002, limit=100))
+def _(env):
+    # a 2 MB supply in a design file: refused at once, and the message stays short
+    err = _fails(lambda e: e.design(I2C_BUS.replace('"3.3 V"', '"3' + " " * 2_000_000 + 'V"')),
+                 env)
+    assert err.line and err.field == "bus[0].supply" and len(err.message) < 400
+    return err
+
+
 # ---------------------------------------------------------------- library: loader
 @case("NOT_A_PART_FILE")
 def _(env):

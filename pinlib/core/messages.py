@@ -60,6 +60,7 @@ TYPE_AS_THRESHOLD = "a {type} where a threshold belongs"
 EMPTY_THRESHOLD = "an empty threshold"
 NOT_A_THRESHOLD = "not a voltage or a multiple of VDD"
 THRESHOLD_NOT_FINITE = "not a finite threshold"
+QUANTITY_TOO_LONG = "{n} characters: too long for a quantity (at most {limit})"
 
 # ---------------------------------------------------------------- pinlib/library/
 # loader.py

@@ -33,7 +33,19 @@ _KEY = r'(?:[A-Za-z0-9_-]+|"[^"]*"|\'[^\']*\')'
 _DOTTED = rf"{_KEY}(?:\s*\.\s*{_KEY})*"
 _HEADER = re.compile(rf"^\s*\[(\[)?\s*({_DOTTED})\s*\]\]?\s*(?:#.*)?$")
 _ASSIGN = re.compile(rf"^\s*({_DOTTED})\s*=\s*(.*)$")
-_INLINE_KEY = re.compile(rf"({_KEY})\s*=")
+# The keys of inline tables, found in one pass: runs of ordinary characters and whole
+# strings are skipped as single tokens, and a key is looked for only right after "{" or
+# ",".  (An unanchored search for KEY = took time quadratic in a long run of key
+# characters: a 20,000-character description took seconds, 2 MB never finished.)
+_INLINE_TOKEN = re.compile(
+    rf"""[^"'{{,]+|"[^"\\]*(?:\\.[^"\\]*)*"?|'[^']*'?|[{{,]\s*(?:({_DOTTED})\s*=)?""")
+
+
+def _inline_keys(text: str) -> list[tuple]:
+    """The key paths written as ``{ key = ...`` or ``, a.b = ...`` in ``text``, each a
+    tuple of names (time linear in the length of ``text``)."""
+    return [tuple(_split_dotted(m.group(1))) for m in _INLINE_TOKEN.finditer(text)
+            if m.group(1)]
 
 
 def _split_dotted(text: str) -> list[str]:
@@ -56,8 +68,8 @@ def line_index(text: str) -> dict[tuple, int]:
             if stripped and stripped[0] not in "]#":
                 pos = array_items[open_array]
                 index.setdefault(open_array + (pos,), number)
-                for key in _INLINE_KEY.findall(line):
-                    index.setdefault(open_array + (pos, key.strip("\"'")), number)
+                for key in _inline_keys(line):
+                    index.setdefault(open_array + (pos,) + key, number)
                 array_items[open_array] = pos + 1
             depth += line.count("[") - line.count("]")
             if depth <= 0:
@@ -80,8 +92,8 @@ def line_index(text: str) -> dict[tuple, int]:
             path = table + tuple(_split_dotted(a.group(1)))
             index.setdefault(path, number)
             rest = a.group(2)
-            for key in _INLINE_KEY.findall(rest):
-                index.setdefault(path + (key.strip("\"'"),), number)
+            for key in _inline_keys(rest):
+                index.setdefault(path + key, number)
             if rest.lstrip().startswith("[") and rest.count("[") > rest.count("]"):
                 open_array, depth = path, rest.count("[") - rest.count("]")
                 array_items[path] = 0
