@@ -150,6 +150,31 @@ def _(env):
     return _fails(lambda e: load_design(e.tmp / "bad.toml"), env)
 
 
+@case("NOT_UTF8_WHERE", M.NOT_UTF8_WHERE.format(byte="0xff", column=10))
+def _(env):
+    (env.tmp / "bad.toml").write_bytes(b"x = 1\ntitle = \"\xff\"\n")
+    err = _fails(lambda e: load_design(e.tmp / "bad.toml"), env)
+    assert err.line == 2
+    return err.message
+
+
+@case("NOT_A_REGULAR_FILE")
+def _(env):
+    os.mkfifo(env.tmp / "pipe.toml")  # read, it would wait for a writer forever
+    return _fails(lambda e: load_design(e.tmp / "pipe.toml"), env)
+
+
+@case("FILE_TOO_LARGE", M.FILE_TOO_LARGE.format(size=12, limit=10))
+def _(env):
+    return _fails(lambda e: load_toml(e.write("big.toml", "title = 'x'\n"), max_bytes=10), env)
+
+
+@case("NESTED_TOO_DEEP", M.NESTED_TOO_DEEP.format(limit=64))
+def _(env):
+    return _fails(lambda e: load_toml(e.write("deep.toml", "x = " + "[" * 600 + "]" * 600)),
+                  env)
+
+
 @case("CANNOT_READ", M.CANNOT_READ.format(reason=os.strerror(errno.EISDIR)))
 def _(env):
     (env.tmp / "folder.toml").mkdir()

@@ -83,3 +83,69 @@ def test_a_long_description_checks_at_once_and_a_long_value_is_cut_in_the_messag
 def test_line_of_falls_back_to_the_enclosing_key():
     index = line_index('a = { b = 1 }\n')
     assert line_of(index, ("a", "b", "c")) == 1
+
+
+def _refused(path, **kw):
+    from pinlib.core.tomlfile import load
+
+    try:
+        load(path, **kw)
+    except InputError as err:
+        return err
+    raise AssertionError(f"{path} was read")
+
+
+def test_deep_nesting_is_refused_with_file_and_line(tmp_path):
+    # 600 levels once raised RecursionError inside the TOML parser
+    deep = tmp_path / "deep.toml"
+    deep.write_text('title = "x"\n\nx = ' + "[" * 600 + "]" * 600 + "\n", encoding="utf-8")
+    err = _refused(deep)
+    assert (err.file, err.line) == (str(deep), 3) and "nested deeper than 64" in err.message
+    # deep enough for pinlib's own code, not for the parser: refused the same way
+    deep.write_text('title = "x"\nx = ' + "[" * 100 + "]" * 100 + "\n", encoding="utf-8")
+    err = _refused(deep)
+    assert err.line == 2 and err.field.startswith("x[0][0]")
+    # tables nested by a dotted header: the line of the header
+    deep.write_text('title = "x"\n[' + ".".join(["t"] * 100) + "]\nv = 1\n", encoding="utf-8")
+    assert _refused(deep).line == 2
+
+
+def test_the_cli_reports_deep_nesting_as_exit_2(tmp_path, capsys):
+    from pinlib.cli import main
+
+    deep = tmp_path / "deep.toml"
+    deep.write_text("x = " + "{ a = " * 600 + "1" + " }" * 600 + "\n", encoding="utf-8")
+    assert main(["check", str(deep)]) == 2
+    err = capsys.readouterr().err
+    assert f"{deep}:1" in err and "Traceback" not in err
+
+
+def test_an_encoding_error_names_the_line_and_column(tmp_path):
+    bad = tmp_path / "bad.toml"
+    bad.write_bytes(b'title = "ok"\nx = 1\ny = "ab\xff"\n')
+    err = _refused(bad)
+    assert err.line == 3 and "byte 0xff at column 8" in err.message
+
+
+def test_windows_line_ends_read_as_before(tmp_path):
+    from pinlib.core.tomlfile import load
+
+    f = tmp_path / "crlf.toml"
+    f.write_bytes(b'a = 1\r\nb = """x\r\ny"""\r\n')
+    data, text = load(f)
+    assert data == {"a": 1, "b": "x\ny"} and "\r" not in text
+
+
+def test_only_regular_files_under_the_limit_are_read(tmp_path):
+    import os
+
+    big = tmp_path / "big.toml"
+    big.write_text(f'x = "{"a" * 2000}"\n', encoding="utf-8")
+    err = _refused(big, max_bytes=1000)
+    assert "2,007 bytes, more than the 1,000 read" in err.message
+    link = tmp_path / "zero.toml"
+    link.symlink_to("/dev/zero")
+    assert "not a regular file" in _refused(link).message  # once grew to gigabytes
+    fifo = tmp_path / "x.toml"
+    os.mkfifo(fifo)
+    assert "not a regular file" in _refused(fifo).message  # once blocked forever

@@ -13,8 +13,10 @@ it answers with the line of the nearest enclosing key.
 from __future__ import annotations
 
 import contextlib
+import errno
 import os
 import re
+import stat
 import sys
 import tempfile
 from pathlib import Path
@@ -133,17 +135,33 @@ def line_of(index: dict[tuple, int], path) -> int | None:
     return None
 
 
-def load(path: str | os.PathLike, *, error=InputError) -> tuple[dict, str]:
-    """Read and parse a TOML file; return (data, text).  Errors name file and line."""
+#: The largest file :func:`load` reads unless told otherwise (a design of hundreds of
+#: buses is well under 1 MB); the library reads part files under a lower limit.
+MAX_FILE_BYTES = 16 * 2**20
+#: Arrays and tables nested deeper than this are refused: pinlib's files nest 5 or 6
+#: levels, and the TOML parser itself fails near 500.
+MAX_NESTING = 64
+
+
+def load(path: str | os.PathLike, *, error=InputError,
+         max_bytes: int = MAX_FILE_BYTES) -> tuple[dict, str]:
+    """Read and parse a TOML file; return (data, text).  Errors name file and line.
+
+    Only a regular file is read (a FIFO, a device or a folder is refused without
+    waiting on it), and only up to ``max_bytes``.
+    """
     p = Path(path)
+    raw = read_regular(p, error=error, max_bytes=max_bytes)
     try:
-        text = p.read_text(encoding="utf-8")
-    except FileNotFoundError:
-        raise error(M.FILE_NOT_FOUND, file=str(p)) from None
+        text = raw.decode("utf-8")
     except UnicodeDecodeError as exc:
-        raise error(M.NOT_UTF8, file=str(p), hint=str(exc)) from None
-    except OSError as exc:
-        raise error(M.CANNOT_READ.format(reason=exc.strerror), file=str(p)) from None
+        line = raw.count(b"\n", 0, exc.start) + 1
+        column = exc.start - (raw.rfind(b"\n", 0, exc.start) + 1) + 1
+        raise error(M.NOT_UTF8, file=str(p), line=line,
+                    hint=M.NOT_UTF8_WHERE.format(byte=f"0x{raw[exc.start]:02x}",
+                                                 column=column)) from None
+    if "\r" in text:  # as a file opened in text mode reads it
+        text = text.replace("\r\n", "\n").replace("\r", "\n")
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
@@ -151,7 +169,86 @@ def load(path: str | os.PathLike, *, error=InputError) -> tuple[dict, str]:
         m = re.search(r"line (\d+)", msg)
         raise error(M.NOT_TOML.format(detail=msg), file=str(p),
                     line=int(m.group(1)) if m else None) from None
+    except RecursionError:
+        raise error(M.NESTED_TOO_DEEP.format(limit=MAX_NESTING), file=str(p),
+                    line=_deep_line(text)) from None
+    deep = _too_deep(data)
+    if deep is not None:
+        raise error(M.NESTED_TOO_DEEP.format(limit=MAX_NESTING), file=str(p),
+                    line=_line_within(line_index(text), deep) or _deep_line(text),
+                    field=dotted(deep[:8]) + ("…" if len(deep) > 8 else "")) from None
     return data, text
+
+
+def read_regular(path: Path, *, error=InputError, max_bytes: int = MAX_FILE_BYTES) -> bytes:
+    """The bytes of a regular file of at most ``max_bytes``; anything else is refused.
+
+    The file is opened without blocking and checked on the open descriptor, so a FIFO
+    named like a part file, ``/dev/zero`` behind a link or a folder is refused at once.
+    """
+    try:
+        fd = os.open(path, os.O_RDONLY | getattr(os, "O_NONBLOCK", 0) | getattr(os, "O_BINARY", 0))
+    except FileNotFoundError:
+        raise error(M.FILE_NOT_FOUND, file=str(path)) from None
+    except OSError as exc:
+        raise error(M.CANNOT_READ.format(reason=exc.strerror), file=str(path)) from None
+    try:
+        st = os.fstat(fd)
+        if stat.S_ISDIR(st.st_mode):
+            raise error(M.CANNOT_READ.format(reason=os.strerror(errno.EISDIR)), file=str(path))
+        if not stat.S_ISREG(st.st_mode):
+            raise error(M.NOT_A_REGULAR_FILE, file=str(path))
+        if st.st_size > max_bytes:
+            raise error(M.FILE_TOO_LARGE.format(size=st.st_size, limit=max_bytes),
+                        file=str(path))
+        chunks, size = [], 0
+        while size <= max_bytes:
+            chunk = os.read(fd, min(1 << 20, max_bytes + 1 - size))
+            if not chunk:
+                break
+            chunks.append(chunk)
+            size += len(chunk)
+    except OSError as exc:
+        raise error(M.CANNOT_READ.format(reason=exc.strerror), file=str(path)) from None
+    finally:
+        os.close(fd)
+    raw = b"".join(chunks)
+    if len(raw) > max_bytes:  # grew while being read
+        raise error(M.FILE_TOO_LARGE.format(size=len(raw), limit=max_bytes), file=str(path))
+    return raw
+
+
+def _too_deep(data) -> tuple | None:
+    """The path of the first value nested deeper than MAX_NESTING, or None (no recursion)."""
+    stack = [((), data)]
+    while stack:
+        path, value = stack.pop()
+        if len(path) > MAX_NESTING:
+            return path
+        if isinstance(value, dict):
+            stack.extend((path + (k,), v) for k, v in value.items())
+        elif isinstance(value, list):
+            stack.extend((path + (i,), v) for i, v in enumerate(value))
+    return None
+
+
+def _line_within(index: dict[tuple, int], path: tuple) -> int | None:
+    """The first line of ``path`` or of a key below it (a deep header names only its
+    whole path), else of its nearest enclosing key."""
+    below = [n for key, n in index.items() if key[: len(path)] == path]
+    return min(below) if below else line_of(index, path)
+
+
+def _deep_line(text: str) -> int | None:
+    """The first line where brackets and braces open deeper than MAX_NESTING (brackets
+    inside strings are counted too: this only places a message)."""
+    depth = 0
+    for number, line in enumerate(text.splitlines(), start=1):
+        opened = line.count("[") + line.count("{")
+        if depth + opened > MAX_NESTING:
+            return number
+        depth = max(0, depth + opened - line.count("]") - line.count("}"))
+    return None
 
 
 @contextlib.contextmanager
