@@ -354,6 +354,49 @@ def _(env):
                   env)
 
 
+@case("EXTENDS_TOO_DEEP", M.EXTENDS_TOO_DEEP.format(limit=loader.MAX_EXTENDS_DEPTH))
+def _(env):
+    n = loader.MAX_EXTENDS_DEPTH + 2
+    for i in range(n):
+        env.write(f"team/p{i}.toml", 'format = "pinlib.part/1"\n'
+                  f'id = "p{i}"\nextends = "p{i + 1}"\n' if i + 1 < n else PART.format(id=f"p{i}"))
+    return _fails(lambda e: load_library([e.tmp / "team"], env=False, strict=True), env)
+
+
+@case("LIBRARY_IS_SYSTEM_FOLDER", M.LIBRARY_IS_SYSTEM_FOLDER.format(real=Path("/").resolve()))
+def _(env):
+    return _fails(lambda e: load_library(["/"], env=False), env)
+
+
+@case("LIBRARY_TOO_DEEP", M.LIBRARY_TOO_DEEP.format(limit=loader.MAX_FOLDER_DEPTH))
+def _(env):
+    env.write("team/" + "d/" * (loader.MAX_FOLDER_DEPTH + 1) + "p.toml", PART.format(id="p"))
+    return _fails(lambda e: load_library([e.tmp / "team"], env=False), env)
+
+
+@case("LIBRARY_TOO_BIG", M.LIBRARY_TOO_BIG.format(limit=3))
+def _(env):
+    env.monkeypatch.setattr(loader, "MAX_FOLDER_ENTRIES", 3)
+    for n in "abcd":
+        env.write(f"team/{n}.toml", PART.format(id=n))
+    return _fails(lambda e: load_library([e.tmp / "team"], env=False), env)
+
+
+@case("LIBRARY_TOO_MANY_FILES", M.LIBRARY_TOO_MANY_FILES.format(limit=3))
+def _(env):
+    env.monkeypatch.setattr(loader, "MAX_PART_FILES", 3)
+    for n in "abcd":
+        env.write(f"team/{n}.toml", PART.format(id=n))
+    return _fails(lambda e: load_library([e.tmp / "team"], env=False), env)
+
+
+@case("LINK_OUT_OF_LIBRARY")
+def _(env):
+    (env.tmp / "team").mkdir()
+    (env.tmp / "team" / "zero.toml").symlink_to("/dev/zero")
+    return _fails(lambda e: load_library([e.tmp / "team"], env=False, strict=True), env)
+
+
 @case("UNKNOWN_PART")
 def _(env):
     return _fails(lambda e: load_library(env=False).get("no-such-part"), env)

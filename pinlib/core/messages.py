@@ -76,6 +76,13 @@ DUPLICATE_BUILTIN_ID = "two built-in parts share one id"
 EXTENDS_NOT_AN_ID = "extends names a part id"
 EXTENDS_CYCLE = "an extends cycle"
 EXTENDS_UNKNOWN = "extends a part that is not in the library"
+EXTENDS_TOO_DEEP = "an extends chain deeper than {limit} levels"
+LIBRARY_IS_SYSTEM_FOLDER = "a library folder may not be a system folder ({real})"
+LIBRARY_TOO_DEEP = "the library folder nests deeper than {limit} folders"
+LIBRARY_TOO_BIG = ("the library folder holds more than {limit:,} files and folders: a "
+                   "library is a folder of part files")
+LIBRARY_TOO_MANY_FILES = "the library folder holds more than {limit:,} part files"
+LINK_OUT_OF_LIBRARY = "a link out of the library folder is not followed"
 # schema.py (pydantic validators: the loader removes pydantic's "Value error, ")
 EDGE_NEEDS_RISE_OR_FALL = "an edge point needs rise or fall (or both)"
 SUPPLY_MAX_BELOW_MIN = "supply max {max} is below min {min}"

@@ -23,7 +23,7 @@ from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, ValidationEr
 
 from pinlib.core import messages as M
 from pinlib.core import protocols
-from pinlib.core.errors import DesignError, PinlibError
+from pinlib.core.errors import DesignError, LibraryError, PinlibError
 from pinlib.core.quantity import format_si, parse
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_index, line_of, load
@@ -392,7 +392,14 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
     if library is None:
         base = path.parent if path else Path.cwd()
         folders = [base / p for p in raw.library] + [Path(p) for p in library_folders]
-        library = load_library(folders, lazy=True)  # only the parts the design names
+        try:
+            library = load_library(folders, lazy=True)  # only the parts the design names
+        except LibraryError as exc:
+            if exc.field != "library":
+                raise
+            # a refused folder (a system folder, a walk past its bounds): where it is named
+            raise DesignError(exc.problem, field="library", value=exc.file,
+                              hint=exc.hint, **at(("library",))) from None
         missing = [p for p in library.problems if "folder not found" in p.problem]
         if missing:
             raise DesignError(M.DESIGN_LIBRARY_MISSING,
