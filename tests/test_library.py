@@ -256,6 +256,17 @@ def test_a_long_extends_chain_is_refused_by_name_not_by_recursion(builtin, tmp_p
     assert lib.parts["q0"].pins["sda"].c_in.value == 10e-12  # from BASE, 32 levels up
 
 
+@pytest.mark.parametrize("low", ["0 V", "-1 V", "0 mV"])
+def test_a_supply_min_not_above_zero_is_refused_where_written(builtin, tmp_path, low):
+    # "0 V" once divided by zero in the open-drain engine; "-1 V" passed silently
+    team = tmp_path / "team"
+    f = write(team, "z.toml", part("z", "base", f'supply = {{ min = "{low}", max = "3.6 V" }}\n'))
+    lib = load_library([team])
+    (err,) = lib.problems
+    assert (err.file, err.line, err.field) == (str(f), 6, "supply.min")
+    assert err.problem == "the supply min must be above 0 V" and "z" not in lib.parts
+
+
 # --- what a library folder may be -------------------------------------------------------
 
 def test_a_system_folder_is_refused_as_a_library(builtin, tmp_path):

@@ -419,6 +419,15 @@ def _(env):
         env)
 
 
+@case("SUPPLY_MIN_NOT_POSITIVE")
+def _(env):
+    err = _fails(lambda e: e.part(PART.format(id="p").replace(
+        'supply = { min = "1.7 V", max = "5.5 V" }', 'supply = { min = "0 V", max = "2 V" }')),
+        env)
+    assert err.line == 5 and err.field == "supply.min"
+    return err
+
+
 @case("BRIDGE_BOTH_SIDES")
 def _(env):
     return _fails(lambda e: e.part(PART.format(id="p") + '\n[sides.a]\nlow_offset = "0.1 V"\n'),

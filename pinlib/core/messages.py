@@ -86,6 +86,7 @@ LINK_OUT_OF_LIBRARY = "a link out of the library folder is not followed"
 # schema.py (pydantic validators: the loader removes pydantic's "Value error, ")
 EDGE_NEEDS_RISE_OR_FALL = "an edge point needs rise or fall (or both)"
 SUPPLY_MAX_BELOW_MIN = "supply max {max} is below min {min}"
+SUPPLY_MIN_NOT_POSITIVE = "the supply min must be above 0 V"
 BRIDGE_BOTH_SIDES = "a bridging part describes both sides, [sides.a] and [sides.b]"
 # values.py
 VALUE_TABLE_UNKNOWN_KEY = "unknown key '{key}' in a value table"
