@@ -1457,6 +1457,23 @@ def _(env):
     return _fails(lambda e: _compare().load_snapshot(e.tmp / "x.result.json"), env)
 
 
+@case("SNAPSHOT_DAMAGED")
+def _(env):
+    env.write("x.result.json", '{"format": "pinlib.result/1", "buses": [1]}')
+    err = _fails(lambda e: _compare().load_snapshot(e.tmp / "x.result.json"), env)
+    assert err.field == "buses[0]"
+    return err
+
+
+@case("SNAPSHOT_IGNORED", M.SNAPSHOT_IGNORED.format(design="{design}"))
+def _(env):
+    design = env.write("design.toml", HEAD + I2C_BUS)
+    env.write("design.result.json", '{"format": "pinlib.result/1", "parts": []}')
+    assert main(["check", str(design)]) == 0  # the check runs; the snapshot is ignored
+    err = env.capsys.readouterr().err
+    return err.replace(str(design), "{design}")
+
+
 @case("NEGATIVE_THRESHOLD")
 def _(env):
     return _fails(lambda e: _compare().parse_change_threshold("-5 %"), env)

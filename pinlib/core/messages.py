@@ -270,6 +270,10 @@ NO_SNAPSHOT_PLACE = "the design was not loaded from a file, so it has no snapsho
 NOT_A_RESULT = "not a result"
 SNAPSHOT_NOT_JSON = "the snapshot is not valid JSON: {detail}"
 NOT_A_SNAPSHOT = "not a pinlib result snapshot"
+SNAPSHOT_DAMAGED = "the snapshot is damaged: a value of the wrong kind"
+# printed by pinlib check and pinlib report after the error of a snapshot they ignore
+SNAPSHOT_IGNORED = ("the snapshot is ignored (no change list); `pinlib check {design} --save` "
+                    "replaces it")
 NEGATIVE_THRESHOLD = "a negative threshold"
 EDIT_CHANGES_MORE = "editing the design file would change more than the parts"
 EDIT_LOST_PART = "the edited design does not hold the new part"
@@ -388,6 +392,7 @@ MODULES = (
     "pinlib.engines.pushpull",
     "pinlib.engines.spi",
     "pinlib.studies.compare",
+    "pinlib.studies.snapshotcheck",
     "pinlib.studies.candidates",
     "pinlib.studies.whatif",
     "pinlib.present.plotdata",
