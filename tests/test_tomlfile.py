@@ -9,7 +9,7 @@ from __future__ import annotations
 import textwrap
 
 from pinlib.core.errors import InputError
-from pinlib.core.tomlfile import line_index, line_of
+from pinlib.core.tomlfile import line_index, line_of, tomllib
 
 
 def test_line_index_finds_inline_keys_and_dotted_ones():
@@ -149,3 +149,64 @@ def test_only_regular_files_under_the_limit_are_read(tmp_path):
     fifo = tmp_path / "x.toml"
     os.mkfifo(fifo)
     assert "not a regular file" in _refused(fifo).message  # once blocked forever
+
+
+def test_a_write_through_a_link_replaces_the_file_it_leads_to(tmp_path):
+    import os
+
+    from pinlib.core.tomlfile import atomic_write, file_lock
+
+    real = tmp_path / "shared" / "part.toml"
+    real.parent.mkdir()
+    real.write_text("x = 1\n", encoding="utf-8")
+    os.chmod(real, 0o640)
+    link = tmp_path / "team" / "part.toml"
+    link.parent.mkdir()
+    link.symlink_to(os.path.relpath(real, link.parent))
+    with file_lock(link):
+        atomic_write(link, "x = 2\n")  # once replaced the link by a regular file
+    assert link.is_symlink() and real.read_text(encoding="utf-8") == "x = 2\n"
+    assert os.stat(real).st_mode & 0o777 == 0o640
+    assert not list(link.parent.glob(".*")) and not list(real.parent.glob(".*"))
+
+
+def test_the_lock_file_is_removed_and_writers_still_take_turns(tmp_path):
+    import threading
+
+    from pinlib.core.tomlfile import atomic_write, file_lock
+
+    counter = tmp_path / "count.toml"
+    atomic_write(counter, "n = 0\n")
+
+    def add(times):
+        for _ in range(times):
+            with file_lock(counter):
+                n = tomllib.loads(counter.read_text(encoding="utf-8"))["n"]
+                atomic_write(counter, f"n = {n + 1}\n")
+
+    workers = [threading.Thread(target=add, args=(40,)) for _ in range(4)]
+    for w in workers:
+        w.start()
+    for w in workers:
+        w.join()
+    # no increment lost although each writer removes the lock file it held
+    assert tomllib.loads(counter.read_text(encoding="utf-8"))["n"] == 160
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["count.toml"]
+
+
+def test_stale_temporaries_of_stopped_writers_are_removed_by_the_next_write(tmp_path):
+    import os
+    import time
+
+    from pinlib.core import tomlfile
+
+    old = time.time() - tomlfile.STALE_TEMPORARY_SECONDS - 60
+    stale = tmp_path / ".design.toml.k3j_x9a2.tmp"  # a writer killed before os.replace
+    fresh = tmp_path / ".other.toml.ab12cd34.tmp"  # a writer at work now
+    foreign = tmp_path / ".notes.abcdefgh.tmp"  # not pinlib's naming
+    for f in (stale, fresh, foreign):
+        f.write_text("half", encoding="utf-8")
+    for f in (stale, foreign):
+        os.utime(f, (old, old))
+    tomlfile.atomic_write(tmp_path / "design.toml", "x = 1\n")
+    assert not stale.exists() and fresh.exists() and foreign.exists()

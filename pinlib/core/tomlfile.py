@@ -256,26 +256,80 @@ def file_lock(target: str | os.PathLike):
     """Hold an exclusive advisory lock beside ``target`` (``.name.lock``) while writing.
 
     Two processes recording into one file take turns; each reads the file afresh
-    inside the lock, so neither overwrites the other's value.
+    inside the lock, so neither overwrites the other's value.  A link is locked at the
+    file it leads to, so writers through the link and through the file take turns too.
+
+    The lock file is removed when the lock is let go (POSIX).  That is safe because a
+    writer that gets the lock checks that the file it locked is still the one at the
+    lock's path, and starts again when it was removed under it; the lock file itself
+    is never followed if it is a link.
     """
-    target = Path(target)
+    target = Path(os.path.realpath(target))
     lock_path = target.with_name(f".{target.name}.lock")
     try:
-        fd = os.open(lock_path, os.O_RDWR | os.O_CREAT, 0o644)
-    except OSError as exc:
-        raise WriteError(M.CANNOT_LOCK.format(reason=exc.strerror), file=str(target)) from None
-    try:
-        try:
-            import fcntl
-        except ImportError:  # pragma: no cover - Windows: msvcrt byte lock
+        import fcntl
+    except ImportError:  # pragma: no cover - Windows: msvcrt byte lock, file kept
+        fcntl = None
+    while True:
+        fd = _open_lock(lock_path, target)
+        if fcntl is None:  # pragma: no cover
             import msvcrt
 
             msvcrt.locking(fd, msvcrt.LK_LOCK, 1)
-        else:
-            fcntl.flock(fd, fcntl.LOCK_EX)
+            break
+        fcntl.flock(fd, fcntl.LOCK_EX)
+        if _same_file(fd, lock_path):
+            break
+        os.close(fd)  # removed by the writer before us: lock the new one
+    try:
         yield
     finally:
+        if fcntl is not None:
+            with contextlib.suppress(OSError):
+                os.unlink(lock_path)  # still ours: we hold its lock
         os.close(fd)
+
+
+def _open_lock(lock_path: Path, target: Path) -> int:
+    flags = os.O_RDWR | os.O_CREAT | getattr(os, "O_NOFOLLOW", 0)
+    try:
+        return os.open(lock_path, flags, 0o644)
+    except OSError as exc:
+        raise WriteError(M.CANNOT_LOCK.format(reason=exc.strerror), file=str(target)) from None
+
+
+def _same_file(fd: int, path: Path) -> bool:
+    try:
+        here = os.stat(path, follow_symlinks=False)
+    except OSError:
+        return False
+    st = os.fstat(fd)
+    return (here.st_dev, here.st_ino) == (st.st_dev, st.st_ino)
+
+
+#: A temporary file of :func:`atomic_write` older than this (seconds) was left by a
+#: writer that was stopped; the next write in its folder removes it.
+STALE_TEMPORARY_SECONDS = 600
+_TEMPORARY = re.compile(r"^\..+\.(?:toml|json|html|md|svg|png)\.[a-z0-9_]{8}\.tmp$")
+
+
+def _remove_stale_temporaries(folder: Path) -> None:
+    """Remove pinlib's own temporary files (``.NAME.XXXXXXXX.tmp``, regular files) left in
+    ``folder`` by writers that were stopped more than STALE_TEMPORARY_SECONDS ago."""
+    import time
+
+    old = time.time() - STALE_TEMPORARY_SECONDS
+    try:
+        entries = list(os.scandir(folder))
+    except OSError:
+        return
+    for entry in entries:
+        if not _TEMPORARY.match(entry.name):
+            continue
+        with contextlib.suppress(OSError):
+            st = entry.stat(follow_symlinks=False)
+            if stat.S_ISREG(st.st_mode) and st.st_mtime < old:
+                os.unlink(entry.path)
 
 
 def _umask() -> int:
@@ -287,12 +341,16 @@ def _umask() -> int:
 def atomic_write(path: str | os.PathLike, text: str) -> None:
     """Replace ``path`` with ``text`` atomically; on any failure the old file stays whole.
 
-    The text goes to a temporary file in the same folder, is flushed and synced, takes
-    the old file's permission bits (a new file those of the umask), and then replaces the
-    old file in one step.
+    When ``path`` is a link, the file it leads to is replaced (the link stays).  Stale
+    temporary files of stopped writers in the folder are removed first.  The text goes
+    to a temporary file in the same folder, is flushed and synced, takes the old file's
+    permission bits (a new file those of the umask), and then replaces the old file in
+    one step.
     """
-    path = Path(path)
+    # Through a link: the file it leads to is replaced, and the link stays a link.
+    path = Path(os.path.realpath(path)) if os.path.islink(path) else Path(path)
     folder = path.parent if str(path.parent) else Path(".")
+    _remove_stale_temporaries(folder)
     try:
         fd, tmp = tempfile.mkstemp(dir=folder, prefix=f".{path.name}.", suffix=".tmp")
     except OSError as exc:
