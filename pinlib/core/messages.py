@@ -121,6 +121,7 @@ NOT_A_DESIGN = "not a design file"
 DESIGN_LIBRARY_MISSING = "a library folder named by the design does not exist"
 MICROSTRIP_NEEDS_HEIGHT = "a microstrip needs its height above the plane"
 STRIPLINE_NEEDS_SPACING = "a stripline needs spacing (plane to plane) or height (to each plane)"
+SPACING_NOT_ABOVE_COPPER = "the plane-to-plane spacing leaves no room for the copper"
 ABSTRACT_ON_BOARD = "an abstract class cannot be placed on a board"
 CABLE_AS_DEVICE = "a cable class belongs in `cables` or a line's sections"
 SECTIONS_OR_STRETCH = "give either sections or one stretch (length, geometry...), not both"
@@ -255,6 +256,9 @@ FIT_TWO_DRIVERS = ("the points fit two drivers within {tolerance}: r_out {r_out}
 NOT_OPEN_DRAIN_BUS = "not an open-drain bus"
 NOT_PUSH_PULL_BUS = "the push-pull engine evaluates spi and gpio buses"
 NO_DRIVER_ON_LINE = "no device drives this line"
+# pinlib/engines/dispatch.py: hints naming where an error an engine met comes from
+PIN_VALUE_AT_SUPPLY = "{part} as {ref} on bus '{bus}' at its supply {vdd} ({where})"
+MET_EVALUATING_BUS = "met evaluating bus '{bus}', in the value '{field}' computed from it"
 TOO_MANY_TIME_STEPS = "the line's waveform would need {steps} time steps (at most {limit})"
 # pinlib/engines/spi.py
 UNKNOWN_SPI_MODE = "unknown SPI mode"

@@ -425,6 +425,10 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
             raise err(M.MICROSTRIP_NEEDS_HEIGHT, loc + ("height",))
         if g.kind == "stripline" and g.height is None and g.spacing is None:
             raise err(M.STRIPLINE_NEEDS_SPACING, loc + ("spacing",))
+        if g.kind == "stripline" and g.spacing is not None and not g.spacing > g.thickness:
+            raise err(M.SPACING_NOT_ABOVE_COPPER, loc + ("spacing",),
+                      value=format_si(g.spacing, "m"),
+                      expected=f"more than the copper thickness, {format_si(g.thickness, 'm')}")
 
     swapped: set[str] = set()
 
