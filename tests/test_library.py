@@ -267,6 +267,17 @@ def test_a_supply_min_not_above_zero_is_refused_where_written(builtin, tmp_path,
     assert err.problem == "the supply min must be above 0 V" and "z" not in lib.parts
 
 
+def test_a_part_of_many_keys_merges_in_linear_time(builtin, tmp_path):
+    # Merging a child over its class once copied the whole origin map for every key:
+    # 20,000 keys took minutes.  Each unknown key is a problem with its own line.
+    team = tmp_path / "team"
+    n = 20_000
+    write(team, "wide.toml", part("wide", "base", "".join(f"k{i} = 1\n" for i in range(n))))
+    lib = load_library([team])
+    assert len(lib.problems) == n
+    assert lib.problems[-1].line == 5 + n and lib.problems[-1].field == f"k{n - 1}"
+
+
 # --- what a library folder may be -------------------------------------------------------
 
 def test_a_system_folder_is_refused_as_a_library(builtin, tmp_path):

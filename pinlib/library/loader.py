@@ -68,13 +68,18 @@ class PartFile:
     raw: dict
     text: str
     builtin: bool
+    _index: dict | None = field(default=None, repr=False, compare=False)
 
     @property
     def id(self) -> str:
         return str(self.raw.get("id", ""))
 
     def line(self, loc) -> int | None:
-        return line_of(line_index(self.text), loc)
+        # the index is built once: a file with thousands of problems is scanned once,
+        # not once a problem
+        if self._index is None:
+            self._index = line_index(self.text)
+        return line_of(self._index, loc)
 
 
 def read_part_file(path: Path, *, builtin: bool = False) -> PartFile:
@@ -124,30 +129,36 @@ def pydantic_errors(exc: ValidationError, *, file=None, locate=None, cls=Library
     return out
 
 
-def _merge(parent: dict, child: dict, parent_origin: dict, child_id: str, prefix=()) -> tuple:
-    """Deep-merge ``child`` over ``parent``; return (merged, origin map)."""
+def _merge(parent: dict, child: dict, parent_origin: dict, child_id: str, top=True) -> tuple:
+    """Deep-merge ``child`` over ``parent``; return (merged, origin map).
+
+    The origin map (key path -> part id) is kept grouped by each path's first key, so
+    that replacing one key's values costs the size of that key's entries, not of the
+    whole map (a part of thousands of keys merged in time linear in its size).
+    """
     merged = dict(parent)
-    origin = {k: v for k, v in parent_origin.items()}
+    groups: dict = {}
+    for k, v in parent_origin.items():
+        groups.setdefault(k[0] if k else None, {})[k] = v
     for key, value in child.items():
-        path = prefix + (key,)
-        if not prefix and key in _NOT_INHERITED:
+        if top and key in _NOT_INHERITED:
             merged[key] = value
             continue
         if (isinstance(value, dict) and isinstance(merged.get(key), dict)
                 and not _is_value_table(value)):
             sub, sub_origin = _merge(merged[key], value,
-                                     {k[len(path):]: v for k, v in origin.items()
-                                      if k[: len(path)] == path}, child_id)
+                                     {k[1:]: v for k, v in groups.get(key, {}).items()},
+                                     child_id, top=False)
             merged[key] = sub
-            origin = {k: v for k, v in origin.items() if k[: len(path)] != path}
-            origin.update({path + k: v for k, v in sub_origin.items()})
+            groups[key] = {(key,) + k: v for k, v in sub_origin.items()}
         else:
             merged[key] = value
-            origin = {k: v for k, v in origin.items() if k[: len(path)] != path}
-            origin[path] = child_id
-    for key in _NOT_INHERITED:
-        if not prefix and key not in child:
-            merged.pop(key, None)
+            groups[key] = {(key,): child_id}
+    origin = {k: v for group in groups.values() for k, v in group.items()}
+    if top:
+        for key in _NOT_INHERITED:
+            if key not in child:
+                merged.pop(key, None)
     return merged, origin
 
 
