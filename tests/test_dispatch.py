@@ -112,3 +112,26 @@ def test_stripline_spacing_below_the_copper_is_refused_at_its_line(tmp_path):
     err = info.value
     assert (err.file, err.line, err.field) == (str(design), 8, "board.geometry.g.spacing")
     assert "(got '20 µm'); expected more than the copper thickness, 35 µm" in err.message
+
+
+def test_a_device_supply_is_named_where_the_design_sets_it(tmp_path):
+    # a doubled device list whose devices carry their own supply: 0 V is refused at the
+    # device's line; a supply too low for the part's levels names that line in the hint
+    board = DESIGN.format(supply="3.3 V").replace(
+        '{ ref = "U7", part = "t-flash" },',
+        '{ ref = "U7", part = "t-flash", supply = "0 V" },\n'
+        '  { ref = "U8", part = "t-flash", supply = "0 V" },')
+    design = tmp_path / "board.toml"
+    design.write_text(board, encoding="utf-8")
+    (tmp_path / "team").mkdir()
+    (tmp_path / "team" / "t-flash.toml").write_text(
+        PART.format(pin='r_out = { value = "35 Ω", source = "test" }'), encoding="utf-8")
+    with pytest.raises(PinlibError) as info:
+        load_design(design)
+    err = info.value
+    assert (err.file, err.line, err.field) == (str(design), 18, "bus[0].devices[1].supply")
+    design.write_text(board.replace('"0 V"', '"1e-12 V"'), encoding="utf-8")
+    with pytest.raises(PinlibError) as info:
+        check_design(load_design(design))
+    assert info.value.file.endswith(".toml") and info.value.line
+    assert f"at its supply 1 pV ({design}:18)" in info.value.message

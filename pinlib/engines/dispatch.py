@@ -71,8 +71,16 @@ def _located(err: PinlibError, bus: Bus, design: Design) -> PinlibError:
     here = f"{design.path}:{bus_line}" if design.path and bus_line else str(design.path)
     pin_of = getattr(err, "pin_of", None)
     device = next((d for d in bus.devices if pin_of and d.ref == pin_of[0]), None)
+    if device is not None and err.field == "vdd":  # the supply itself: where it is set
+        loc = device.loc + ("supply",) if device.supply is not None else bus.loc + ("supply",)
+        return type(err)(err.problem, file=str(design.path) if design.path else None,
+                         line=line_of(index, loc), field=dotted(loc), value=err.value,
+                         expected=err.expected, hint=err.hint)
     if device is not None:
         _, pin_name, vdd = pin_of
+        if device.supply is not None:  # the device's own rail: the line that sets it
+            own = line_of(index, device.loc + ("supply",))
+            here = f"{design.path}:{own}" if design.path and own else here
         loc = ("pins", pin_name) + ((err.field,) if err.field else ())
         files = design.library.files
         value = getattr(device.part.pins.get(pin_name), err.field or "", None)

@@ -446,6 +446,8 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict) -> De
         if part.category == "cable":
             raise err(M.CABLE_AS_DEVICE, loc + ("part",),
                       value=part_id)
+        if d.supply is not None and not d.supply > 0:
+            raise err(M.SUPPLY_NOT_POSITIVE, loc + ("supply",), value=format_si(d.supply, "V"))
         role = "peripheral" if d.role == "target" else d.role
         return Device(d.ref, part_id, part, role, d.supply, d.switched, d.series_resistor,
                       d.side, d.internal_pullups, d.pin, d.capacitance_tolerance, loc)
