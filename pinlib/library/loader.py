@@ -57,7 +57,7 @@ MAX_EXTENDS_DEPTH = 32
 #: file systems); a file system root and the home folder itself are refused as well.
 _PSEUDO_FOLDERS = ("/proc", "/sys", "/dev")
 _SYSTEM_FOLDERS = ("/usr", "/etc", "/bin", "/sbin", "/lib", "/lib64", "/boot", "/var",
-                   "/run", "/opt", "/srv", "/home", "/Users", "/root", "/tmp")
+                   "/run", "/home", "/Users", "/root")
 
 
 @dataclass
