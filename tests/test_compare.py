@@ -324,6 +324,77 @@ def test_broken_snapshot_is_an_input_error(board):
         load_snapshot(snapshot_path(board))
 
 
+@pytest.mark.parametrize("damage", [
+    ("buses", [1]), ("parts", []), ("buses", None), ("parts", {"U4": {"values": None}}),
+    ("parts", {"U4": {"buses": [1], "part": "x"}}), ("status", {"a": 1}),
+    ("library", {"overrides": [1]}),
+])
+def test_a_damaged_snapshot_is_named_and_ignored_by_check(board, capsys, damage):
+    # Once an AttributeError or TypeError inside the change-list code on a plain check.
+    design = load_design(board)
+    code = main(["check", str(board)])
+    capsys.readouterr()
+    save_snapshot(design, check_design(design))
+    path = snapshot_path(board)
+    data = json.loads(path.read_text(encoding="utf-8"))
+    key, value = damage
+    data[key] = value
+    path.write_text(json.dumps(data), encoding="utf-8")
+    assert main(["check", str(board)]) == code  # the check runs as without a snapshot
+    err = capsys.readouterr().err
+    assert f"pinlib: warning: {path}, field '{key}" in err and "snapshot is ignored" in err
+    assert "Traceback" not in err
+    with pytest.raises(InputError) as info:  # the API without `damaged` raises it
+        compare_with_snapshot(design, check_design(design))
+    assert info.value.file == str(path) and info.value.field.startswith(key)
+
+
+def _paths(obj, path=()):
+    yield path
+    if isinstance(obj, dict):
+        for k, v in obj.items():
+            yield from _paths(v, path + (k,))
+    elif isinstance(obj, list):
+        for i, v in enumerate(obj):
+            yield from _paths(v, path + (i,))
+
+
+def test_mutated_snapshots_give_a_change_list_or_a_named_error(board, tmp_path):
+    # Every place of a real snapshot, replaced by a value of another kind: the change
+    # list is built and printed, or the snapshot is refused naming its file; nothing
+    # else is raised.  (A probe once found 88 of 400 mutated snapshots raising.)
+    import copy
+    import random
+
+    from pinlib.studies.snapshotcheck import check_snapshot
+
+    design = load_design(board)
+    new = snapshot(design, check_design(design))
+    good = json.loads(json.dumps(new))
+    places = [p for p in _paths(good) if p]
+    odd = [1, -1.5, "x", None, True, [], {}, [1], {"a": 1}, [[]], {"value": []}]
+    rng = random.Random(14)
+    refused = listed = 0
+    for place in rng.sample(places, min(500, len(places))):
+        for value in rng.sample(odd, 3):
+            damaged = copy.deepcopy(good)
+            target = damaged
+            for step in place[:-1]:
+                target = target[step]
+            target[place[-1]] = value
+            try:
+                check_snapshot(damaged, tmp_path / "s.result.json")
+            except InputError as err:
+                assert err.file == str(tmp_path / "s.result.json")
+                refused += 1
+                continue
+            changes = compare(damaged, new)
+            changes.format_text()
+            json.dumps(changes.to_json())
+            listed += 1
+    assert refused and listed  # both kinds met
+
+
 def test_library_edit_with_same_part_id_lists_the_value(board, tmp_path):
     """The snapshot catches a part file edited after it was saved (same part id)."""
     team = tmp_path / "team"

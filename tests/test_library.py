@@ -236,6 +236,118 @@ def test_missing_parent(builtin, tmp_path):
     assert "base" in err.hint
 
 
+def test_a_long_extends_chain_is_refused_by_name_not_by_recursion(builtin, tmp_path):
+    # 1,000 levels once raised RecursionError; the chain is now followed in a loop
+    team = tmp_path / "team"
+    n = 1000
+    for i in range(n):
+        write(team, f"p{i}.toml", part(f"p{i}", f"p{i + 1}" if i + 1 < n else "base"))
+    lib = load_library([team], lazy=True)
+    assert "p0" not in lib.parts
+    (err,) = lib.problems
+    assert err.problem == "an extends chain deeper than 32 levels"
+    assert err.file == str(team / "p0.toml") and err.line == 5 and err.field == "extends"
+    # at the limit: 32 steps from p0 to base load, values inherited from the root
+    ok = tmp_path / "ok"
+    for i in range(32):
+        write(ok, f"q{i}.toml", part(f"q{i}", f"q{i + 1}" if i + 1 < 32 else "base"))
+    lib = load_library([ok])
+    assert not lib.problems
+    assert lib.parts["q0"].pins["sda"].c_in.value == 10e-12  # from BASE, 32 levels up
+
+
+@pytest.mark.parametrize("low", ["0 V", "-1 V", "0 mV"])
+def test_a_supply_min_not_above_zero_is_refused_where_written(builtin, tmp_path, low):
+    # "0 V" once divided by zero in the open-drain engine; "-1 V" passed silently
+    team = tmp_path / "team"
+    f = write(team, "z.toml", part("z", "base", f'supply = {{ min = "{low}", max = "3.6 V" }}\n'))
+    lib = load_library([team])
+    (err,) = lib.problems
+    assert (err.file, err.line, err.field) == (str(f), 6, "supply.min")
+    assert err.problem == "the supply min must be above 0 V" and "z" not in lib.parts
+
+
+def test_a_part_of_many_keys_merges_in_linear_time(builtin, tmp_path):
+    # Merging a child over its class once copied the whole origin map for every key:
+    # 20,000 keys took minutes.  Each unknown key is a problem with its own line.
+    team = tmp_path / "team"
+    n = 20_000
+    write(team, "wide.toml", part("wide", "base", "".join(f"k{i} = 1\n" for i in range(n))))
+    lib = load_library([team])
+    assert len(lib.problems) == n
+    assert lib.problems[-1].line == 5 + n and lib.problems[-1].field == f"k{n - 1}"
+
+
+# --- what a library folder may be -------------------------------------------------------
+
+def test_a_system_folder_is_refused_as_a_library(builtin, tmp_path):
+    with pytest.raises(LibraryError, match="may not be a system folder"):
+        load_library([Path(tmp_path.anchor)])  # once walked the whole machine
+    # named by a design as ../../.. up to the root: the design's line says where
+    from pinlib.model.design import load_design
+
+    up = "/".join([".."] * (len(tmp_path.parts) - 1))
+    design = write(tmp_path, "d.toml", f'format = "pinlib.design/1"\ntitle = "t"\n'
+                                       f'library = ["{up}"]\n')
+    with pytest.raises(PinlibError) as info:
+        load_design(design)
+    err = info.value
+    assert (err.file, err.line, err.field) == (str(design), 3, "library")
+    assert "system folder" in err.message
+
+
+def test_only_regular_part_files_inside_the_folder_are_read(builtin, tmp_path):
+    import os
+
+    team = tmp_path / "team"
+    write(team, "good.toml", part("good", "base"))
+    (team / "zero.toml").symlink_to("/dev/zero")  # once grew to gigabytes
+    os.mkfifo(team / "pipe.toml")  # once blocked forever
+    write(team, "huge.toml", part("huge", "base", f'description = "{"x" * 2**20}"\n'))
+    outside = write(tmp_path / "elsewhere", "far.toml", part("far", "base"))
+    (team / "far.toml").symlink_to(outside)
+    lib = load_library([team])
+    assert list(lib.placeable()) == ["good"]
+    problems = {Path(p.file).name: p.problem for p in lib.problems}
+    assert problems == {
+        "zero.toml": "a link out of the library folder is not followed",
+        "far.toml": "a link out of the library folder is not followed",
+        "pipe.toml": "not a regular file (a device, a pipe or a socket is not read)",
+        "huge.toml": f"the file holds {len(part('huge', 'base')) + 2**20 + 17:,} bytes, "
+                     f"more than the {2**20:,} read",
+    }
+    # asked to follow links: the far part is read, /dev/zero is still refused
+    lib = load_library([team], follow_links=True)
+    assert sorted(lib.placeable()) == ["far", "good"]
+    assert "not a regular file" in str([p for p in lib.problems if "zero" in p.file])
+
+
+def test_links_inside_the_folder_are_read_once(builtin, tmp_path):
+    team = tmp_path / "team"
+    write(team / "sub", "a.toml", part("a", "base"))
+    (team / "alias").symlink_to(team / "sub")
+    (team / "sub" / "loop").symlink_to(team)  # a cycle of folders
+    (team / "b.toml").symlink_to(team / "sub" / "a.toml")
+    lib = load_library([team])
+    assert not lib.problems and list(lib.placeable()) == ["a"]
+
+
+def test_the_walk_of_a_library_folder_is_bounded(builtin, tmp_path, monkeypatch):
+    deep = tmp_path / "deep"
+    write(deep.joinpath(*["d"] * 17), "x.toml", part("x", "base"))
+    with pytest.raises(LibraryError, match="nests deeper than 16 folders"):
+        load_library([deep])
+    wide = tmp_path / "wide"
+    for i in range(11):
+        write(wide, f"p{i}.toml", part(f"p{i}", "base"))
+    monkeypatch.setattr(loader, "MAX_PART_FILES", 10)
+    with pytest.raises(LibraryError, match="more than 10 part files"):
+        load_library([wide])
+    monkeypatch.setattr(loader, "MAX_FOLDER_ENTRIES", 5)
+    with pytest.raises(LibraryError, match="more than 5 files and folders"):
+        load_library([wide])
+
+
 # --- overlays ---------------------------------------------------------------------------
 
 def test_overlay_order_and_override(builtin, tmp_path, monkeypatch):

@@ -151,6 +151,31 @@ def _(env):
     return _fails(lambda e: load_design(e.tmp / "bad.toml"), env)
 
 
+@case("NOT_UTF8_WHERE", M.NOT_UTF8_WHERE.format(byte="0xff", column=10))
+def _(env):
+    (env.tmp / "bad.toml").write_bytes(b"x = 1\ntitle = \"\xff\"\n")
+    err = _fails(lambda e: load_design(e.tmp / "bad.toml"), env)
+    assert err.line == 2
+    return err.message
+
+
+@case("NOT_A_REGULAR_FILE")
+def _(env):
+    os.mkfifo(env.tmp / "pipe.toml")  # read, it would wait for a writer forever
+    return _fails(lambda e: load_design(e.tmp / "pipe.toml"), env)
+
+
+@case("FILE_TOO_LARGE", M.FILE_TOO_LARGE.format(size=12, limit=10))
+def _(env):
+    return _fails(lambda e: load_toml(e.write("big.toml", "title = 'x'\n"), max_bytes=10), env)
+
+
+@case("NESTED_TOO_DEEP", M.NESTED_TOO_DEEP.format(limit=64))
+def _(env):
+    return _fails(lambda e: load_toml(e.write("deep.toml", "x = " + "[" * 600 + "]" * 600)),
+                  env)
+
+
 @case("CANNOT_READ", M.CANNOT_READ.format(reason=os.strerror(errno.EISDIR)))
 def _(env):
     (env.tmp / "folder.toml").mkdir()
@@ -266,6 +291,15 @@ def _(env):
     return _fails(lambda e: parse_threshold("1e308 VDD + 1e308 VDD"), env)
 
 
+@case("QUANTITY_TOO_LONG", M.QUANTITY_TOO_LONG.format(n=2_000_002, limit=100))
+def _(env):
+    # a 2 MB supply in a design file: refused at once, and the message stays short
+    err = _fails(lambda e: e.design(I2C_BUS.replace('"3.3 V"', '"3' + " " * 2_000_000 + 'V"')),
+                 env)
+    assert err.line and err.field == "bus[0].supply" and len(err.message) < 400
+    return err
+
+
 # ---------------------------------------------------------------- library: loader
 @case("NOT_A_PART_FILE")
 def _(env):
@@ -332,6 +366,49 @@ def _(env):
 def _(env):
     return _fails(lambda e: e.part('format = "pinlib.part/1"\nid = "p"\nextends = "nothing"\n'),
                   env)
+
+
+@case("EXTENDS_TOO_DEEP", M.EXTENDS_TOO_DEEP.format(limit=loader.MAX_EXTENDS_DEPTH))
+def _(env):
+    n = loader.MAX_EXTENDS_DEPTH + 2
+    for i in range(n):
+        env.write(f"team/p{i}.toml", 'format = "pinlib.part/1"\n'
+                  f'id = "p{i}"\nextends = "p{i + 1}"\n' if i + 1 < n else PART.format(id=f"p{i}"))
+    return _fails(lambda e: load_library([e.tmp / "team"], env=False, strict=True), env)
+
+
+@case("LIBRARY_IS_SYSTEM_FOLDER", M.LIBRARY_IS_SYSTEM_FOLDER.format(real=Path("/").resolve()))
+def _(env):
+    return _fails(lambda e: load_library(["/"], env=False), env)
+
+
+@case("LIBRARY_TOO_DEEP", M.LIBRARY_TOO_DEEP.format(limit=loader.MAX_FOLDER_DEPTH))
+def _(env):
+    env.write("team/" + "d/" * (loader.MAX_FOLDER_DEPTH + 1) + "p.toml", PART.format(id="p"))
+    return _fails(lambda e: load_library([e.tmp / "team"], env=False), env)
+
+
+@case("LIBRARY_TOO_BIG", M.LIBRARY_TOO_BIG.format(limit=3))
+def _(env):
+    env.monkeypatch.setattr(loader, "MAX_FOLDER_ENTRIES", 3)
+    for n in "abcd":
+        env.write(f"team/{n}.toml", PART.format(id=n))
+    return _fails(lambda e: load_library([e.tmp / "team"], env=False), env)
+
+
+@case("LIBRARY_TOO_MANY_FILES", M.LIBRARY_TOO_MANY_FILES.format(limit=3))
+def _(env):
+    env.monkeypatch.setattr(loader, "MAX_PART_FILES", 3)
+    for n in "abcd":
+        env.write(f"team/{n}.toml", PART.format(id=n))
+    return _fails(lambda e: load_library([e.tmp / "team"], env=False), env)
+
+
+@case("LINK_OUT_OF_LIBRARY")
+def _(env):
+    (env.tmp / "team").mkdir()
+    (env.tmp / "team" / "zero.toml").symlink_to("/dev/zero")
+    return _fails(lambda e: load_library([e.tmp / "team"], env=False, strict=True), env)
 
 
 @case("UNKNOWN_PART")
@@ -537,6 +614,15 @@ def _(env):
     return _fails(lambda e: e.part(PART.format(id="p").replace(
         'supply = { min = "1.7 V", max = "5.5 V" }', 'supply = { min = "3 V", max = "2 V" }')),
         env)
+
+
+@case("SUPPLY_MIN_NOT_POSITIVE")
+def _(env):
+    err = _fails(lambda e: e.part(PART.format(id="p").replace(
+        'supply = { min = "1.7 V", max = "5.5 V" }', 'supply = { min = "0 V", max = "2 V" }')),
+        env)
+    assert err.line == 5 and err.field == "supply.min"
+    return err
 
 
 @case("BRIDGE_BOTH_SIDES")
@@ -775,6 +861,13 @@ def _(env):
 def _device(part: str, extra: str = "") -> str:
     return I2C_BUS.replace('{ ref = "U2", part = "eeprom-i2c" }',
                            f'{{ ref = "U2", part = "{part}"{extra} }}')
+
+
+@case("SPACING_NOT_ABOVE_COPPER")
+def _(env):
+    head = HEAD.replace('kind = "microstrip"', 'kind = "stripline"').replace(
+        'height = "0.18 mm"', 'spacing = "0.03 mm"')
+    return _fails(lambda e: e.design(SPI_BUS, head=head), env)
 
 
 @case("ABSTRACT_ON_BOARD")
@@ -1541,6 +1634,29 @@ lines.reset = { length = "3 cm", geometry = "g" }
 """
 
 
+@case("PIN_VALUE_AT_SUPPLY", lambda: M.PIN_VALUE_AT_SUPPLY.format(
+    part="mcu-3v3", ref="U1", bus="s", vdd="1 nV", where="{design}:10"))
+def _(env):
+    from pinlib.engines.dispatch import check_design
+
+    design = env.design(SPI_BUS.replace('supply = "3.3 V"', 'supply = "1e-9 V"'))
+    err = _fails(lambda e: check_design(design), env)
+    return err.message.replace(str(design.path), "{design}")
+
+
+@case("MET_EVALUATING_BUS", M.MET_EVALUATING_BUS.format(bus="s", field="x"))
+def _(env):
+    from pinlib.engines import pushpull
+    from pinlib.engines.dispatch import check_design
+
+    def refuse(bus, design):  # an engine error that names no place
+        raise PinlibError(M.NOT_A_NUMBER, field="x")
+
+    env.monkeypatch.setattr(pushpull, "evaluate_bus", refuse)
+    design = env.design(SPI_BUS)
+    return _fails(lambda e: check_design(design), env).message
+
+
 @case("NO_DRIVER_ON_LINE")
 def _(env):
     text = GPIO_BUS.replace(', pin = "{pin}"', "")
@@ -1638,6 +1754,23 @@ def _(env):
 def _(env):
     env.write("x.result.json", '{"format": "other"}')
     return _fails(lambda e: _compare().load_snapshot(e.tmp / "x.result.json"), env)
+
+
+@case("SNAPSHOT_DAMAGED")
+def _(env):
+    env.write("x.result.json", '{"format": "pinlib.result/1", "buses": [1]}')
+    err = _fails(lambda e: _compare().load_snapshot(e.tmp / "x.result.json"), env)
+    assert err.field == "buses[0]"
+    return err
+
+
+@case("SNAPSHOT_IGNORED", M.SNAPSHOT_IGNORED.format(design="{design}"))
+def _(env):
+    design = env.write("design.toml", HEAD + I2C_BUS)
+    env.write("design.result.json", '{"format": "pinlib.result/1", "parts": []}')
+    assert main(["check", str(design)]) == 0  # the check runs; the snapshot is ignored
+    err = env.capsys.readouterr().err
+    return err.replace(str(design), "{design}")
 
 
 @case("NEGATIVE_THRESHOLD")
@@ -1981,10 +2114,16 @@ def _(env):
     return html.unescape(_review(env, "render_html", [MC_REFUSED]))
 
 
-@case("CHART_NOT_DRAWN_WITH_TITLE", lambda: M.CHART_NOT_DRAWN_WITH_TITLE.format(
-    title="Monte Carlo: rise-time", error=_histogram_refusal()))
+@case("CHART_NOT_DRAWN_WITH_TITLE", lambda: _markdown_text(M.CHART_NOT_DRAWN_WITH_TITLE.format(
+    title="Monte Carlo: rise-time", error=_histogram_refusal())))
 def _(env):
     return _review(env, "render_markdown", [MC_REFUSED])
+
+
+def _markdown_text(text: str) -> str:
+    from pinlib.present.review import _mt
+
+    return _mt(text)  # as the Markdown report writes user-reachable text (escaped)
 
 
 @case("NO_SAMPLED_CHECK_VARIES")

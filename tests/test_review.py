@@ -712,3 +712,112 @@ def test_browser_detectors_can_fail(tmp_path):
                      "<title>blank</title></head><body></body></html>", encoding="utf-8")
     img, _ = _screenshot(blank, tmp_path)
     assert float((img.min(axis=2) < 245).mean()) < 0.02
+
+
+# =========================================================================== Markdown injection
+
+_EVIL = ("evil ```` x\n```\n# Approved: every check passes\n\n![t](https://tracker.example/p.png)"
+         "\n<img src=x onerror=alert(1)>\n| a | b |\n|---|---|\n- [link](javascript:x) *em* `c`\n"
+         "1. item\n---\n    indented\n~~~\n")
+
+_INJECT_PART = """\
+format = "pinlib.part/1"
+id = "t-evil"
+title = {text}
+category = "memory"
+extends = "eeprom-i2c"
+provenance = {{ basis = "estimate", source = {text} }}
+
+[pins.sda]
+c_in = {{ value = "{c_in}", basis = "estimate", source = {text} }}
+"""
+
+_INJECT_DESIGN = """\
+format = "pinlib.design/1"
+title = {text}
+description = {text}
+library = ["team"]
+
+[[bus]]
+id = "b"
+title = {text}
+protocol = "i2c"
+mode = "fast"
+supply = "3.3 V"
+pullup = "2.2 kΩ"
+trace = {{ length = "5 cm", capacitance = "0.8 pF/cm" }}
+devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
+  {{ ref = "U2", part = "t-evil" }},
+]
+"""
+
+
+def _injected_report(folder: Path, text: str) -> str:
+    import json
+
+    team = folder / "team"
+    team.mkdir(parents=True)
+    quoted = json.dumps(text)  # a JSON string is a TOML basic string here
+    (team / "t-evil.toml").write_text(_INJECT_PART.format(text=quoted, c_in="8 pF"),
+                                      encoding="utf-8")
+    board = folder / "board.toml"
+    board.write_text(_INJECT_DESIGN.format(text=quoted), encoding="utf-8")
+    design = load_design(board)
+    save_snapshot(design, check_design(design))
+    # the source and value change, so the change list quotes the user's text
+    (team / "t-evil.toml").write_text(_INJECT_PART.format(text=quoted, c_in="9 pF"),
+                                      encoding="utf-8")
+    design = load_design(board)
+    result = check_design(design)
+    changes = compare_with_snapshot(design, result)
+    assert changes is not None and changes.part_changes
+    return review.render_markdown(design, result, changes=changes)
+
+
+def _structure(md: str) -> dict:
+    # CommonMark: a fence of n backticks is closed by a line of at least n backticks
+    # and nothing else; what lies between is code, left out of the other counts.
+    lines, fences, fence = [], [], None
+    for ln in md.splitlines():
+        mark = re.match(r"\s{0,3}(`{3,}|~{3,})", ln)
+        if fence is None and mark:
+            fence = mark.group(1)
+            fences.append(ln)
+        elif fence is not None:
+            if re.fullmatch(rf"\s{{0,3}}{fence[0]}{{{len(fence)},}}\s*", ln):
+                fence = None
+                fences.append(ln)
+        else:
+            lines.append(ln)
+    return {
+        "headings": [ln.split(" ", 1)[0] for ln in lines if ln.startswith("#")],
+        "table rules": sum(1 for ln in lines if ln.startswith("| ---")),
+        "table rows": sum(1 for ln in lines if ln.startswith("|")),
+        "fences": len(fences),
+        "unclosed fence": fence is not None,
+        "images": sum(len(re.findall(r"!\[", ln)) for ln in lines),
+        "list items": sum(1 for ln in lines if re.match(r"\s*(?:[-+*]|\d+[.)])\s", ln)),
+        "quotes": sum(1 for ln in lines if ln.startswith(">")),
+        "rules": sum(1 for ln in lines if re.fullmatch(r"\s*(?:-{3,}|={3,}|\*{3,})\s*", ln)),
+        "indented": sum(1 for ln in lines if ln.startswith("    ")),
+        "outside code": "\n".join(lines),
+    }
+
+
+def test_user_text_cannot_change_the_structure_of_the_markdown_report(tmp_path):
+    # Titles, descriptions, sources once kept their newlines, fences and images: a
+    # description ending in a fence turned the rest of the report into one code block
+    # (every table gone) and could add a heading and an external image.  No Markdown
+    # renderer is installed here, so the report's structure is read line by line: the
+    # same headings, tables, fences, images, lists, quotes and rules as with plain text.
+    evil = _structure(_injected_report(tmp_path / "evil", _EVIL))
+    plain = _structure(_injected_report(tmp_path / "plain", "plain words"))
+    text = evil.pop("outside code")
+    plain.pop("outside code")
+    assert evil == plain
+    assert evil["fences"] == 2  # the change list's own, opened and closed
+    assert "<img" not in text
+    # a link or image target only after an unescaped "]"
+    assert not re.search(r"(?<!\\)\]\((?:https://tracker|javascript)", text)
+    assert "Approved: every check passes" in text  # shown as text, not dropped

@@ -11,6 +11,8 @@ clear line and the workbooks can place the message beside the offending field.
 
 from __future__ import annotations
 
+import reprlib
+
 __all__ = [
     "PinlibError",
     "InputError",
@@ -22,6 +24,21 @@ __all__ = [
     "ValidityWarning",
     "FitWarning",
 ]
+
+
+#: Echoed values and field paths longer than this are cut in messages (the error keeps the
+#: whole value in ``value``); a 2 MB string stays readable as its start and its length.
+ECHO_LIMIT = 80
+_SHORT = reprlib.Repr()
+_SHORT.maxstring = _SHORT.maxother = ECHO_LIMIT
+_SHORT.maxlist = _SHORT.maxtuple = _SHORT.maxdict = _SHORT.maxset = 20
+
+
+def _cut(text: str, limit: int = ECHO_LIMIT) -> str:
+    """``text`` itself, or its start, an ellipsis and its length when longer than ``limit``."""
+    if len(text) <= limit:
+        return text
+    return f"{text[: limit - 20]}… ({len(text):,} characters)"
 
 
 class PinlibError(Exception):
@@ -82,14 +99,14 @@ class PinlibError(Exception):
         if self.file:
             parts.append(self.file if self.line is None else f"{self.file}:{self.line}")
         if self.field:
-            parts.append(f"field '{self.field}'")
+            parts.append(f"field '{_cut(self.field)}'")
         return ", ".join(parts)
 
     @property
     def message(self) -> str:
         text = self.problem
         if self.value is not None:
-            text += f" (got {self.value!r})"
+            text += f" (got {_echo(self.value)})"
         if self.expected:
             text += f"; expected {self.expected}"
         if self.hint:
@@ -106,11 +123,23 @@ class PinlibError(Exception):
             "file": self.file,
             "line": self.line,
             "field": self.field,
-            "value": None if self.value is None else str(self.value),
+            "value": None if self.value is None else _cut(str(self.value)),
             "expected": self.expected,
             "hint": self.hint,
             "message": self.message,
         }
+
+
+def _echo(value: object) -> str:
+    """The value as a message shows it: its repr, cut to :data:`ECHO_LIMIT` (a long string
+    or container is cut before its repr is built, so that stays cheap)."""
+    if isinstance(value, (str, bytes)) and len(value) > ECHO_LIMIT:
+        return f"{value[: ECHO_LIMIT - 20]!r}… ({len(value):,} characters)"
+    if isinstance(value, (list, tuple, dict, set)):
+        if len(value) > ECHO_LIMIT:
+            return f"a {type(value).__name__} of {len(value):,} items"
+        return _cut(_SHORT.repr(value))  # nested contents cut too
+    return _cut(repr(value))
 
 
 class InputError(PinlibError, ValueError):

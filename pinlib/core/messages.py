@@ -41,6 +41,10 @@ NO_SUCH_REFERENCE = "no device with this reference"
 # ---------------------------------------------------------------- pinlib/core/tomlfile.py
 FILE_NOT_FOUND = "file not found"
 NOT_UTF8 = "not UTF-8 text"
+NOT_UTF8_WHERE = "byte {byte} at column {column} is not UTF-8; save the file as UTF-8"
+NOT_A_REGULAR_FILE = "not a regular file (a device, a pipe or a socket is not read)"
+FILE_TOO_LARGE = "the file holds {size:,} bytes, more than the {limit:,} read"
+NESTED_TOO_DEEP = "arrays or tables nested deeper than {limit} levels"
 CANNOT_READ = "cannot read the file: {reason}"
 NOT_TOML = "not valid TOML: {detail}"
 CANNOT_LOCK = "cannot lock the file: {reason}"
@@ -61,6 +65,7 @@ TYPE_AS_THRESHOLD = "a {type} where a threshold belongs"
 EMPTY_THRESHOLD = "an empty threshold"
 NOT_A_THRESHOLD = "not a voltage or a multiple of VDD"
 THRESHOLD_NOT_FINITE = "not a finite threshold"
+QUANTITY_TOO_LONG = "{n} characters: too long for a quantity (at most {limit})"
 
 # ---------------------------------------------------------------- pinlib/library/
 # loader.py
@@ -81,9 +86,17 @@ PART_DOES_NOT_VALIDATE = "part '{part}' does not load: {problem}"
 NAMED_AT = "the part is named at {where}"
 MORE_PROBLEMS = "{n} more problem(s): 'pinlib parts check' lists them"
 UNREAD_FILES = "{n} library file(s) could not be read, the first: {first}"
+EXTENDS_TOO_DEEP = "an extends chain deeper than {limit} levels"
+LIBRARY_IS_SYSTEM_FOLDER = "a library folder may not be a system folder ({real})"
+LIBRARY_TOO_DEEP = "the library folder nests deeper than {limit} folders"
+LIBRARY_TOO_BIG = ("the library folder holds more than {limit:,} files and folders: a "
+                   "library is a folder of part files")
+LIBRARY_TOO_MANY_FILES = "the library folder holds more than {limit:,} part files"
+LINK_OUT_OF_LIBRARY = "a link out of the library folder is not followed"
 # schema.py (pydantic validators: the loader removes pydantic's "Value error, ")
 EDGE_NEEDS_RISE_OR_FALL = "an edge point needs rise or fall (or both)"
 SUPPLY_MAX_BELOW_MIN = "supply max {max} is below min {min}"
+SUPPLY_MIN_NOT_POSITIVE = "the supply min must be above 0 V"
 BRIDGE_BOTH_SIDES = "a bridging part describes both sides, [sides.a] and [sides.b]"
 CABLE_NEEDS_TWO_OF_THREE = ("a cable class gives its capacitance per length, or two of "
                             "capacitance, delay and impedance (each above zero)")
@@ -128,6 +141,7 @@ DESIGN_LIBRARY_MISSING = "a library folder named by the design does not exist"
 LOOKED_FOR = "looked for {path}"
 MICROSTRIP_NEEDS_HEIGHT = "a microstrip needs its height above the plane"
 STRIPLINE_NEEDS_SPACING = "a stripline needs spacing (plane to plane) or height (to each plane)"
+SPACING_NOT_ABOVE_COPPER = "the plane-to-plane spacing leaves no room for the copper"
 ABSTRACT_ON_BOARD = "an abstract class cannot be placed on a board"
 CABLE_AS_DEVICE = "a cable class belongs in `cables` or a line's sections"
 SECTIONS_OR_STRETCH = "give either sections or one stretch (length, geometry...), not both"
@@ -270,6 +284,9 @@ FIT_TWO_DRIVERS = ("the points fit two drivers within {tolerance}: r_out {r_out}
 NOT_OPEN_DRAIN_BUS = "not an open-drain bus"
 NOT_PUSH_PULL_BUS = "the push-pull engine evaluates spi and gpio buses"
 NO_DRIVER_ON_LINE = "no device drives this line"
+# pinlib/engines/dispatch.py: hints naming where an error an engine met comes from
+PIN_VALUE_AT_SUPPLY = "{part} as {ref} on bus '{bus}' at its supply {vdd} ({where})"
+MET_EVALUATING_BUS = "met evaluating bus '{bus}', in the value '{field}' computed from it"
 TOO_MANY_TIME_STEPS = "the line's waveform would need {steps} time steps (at most {limit})"
 # pinlib/engines/spi.py
 UNKNOWN_SPI_MODE = "unknown SPI mode"
@@ -305,6 +322,10 @@ NO_SNAPSHOT_PLACE = "the design was not loaded from a file, so it has no snapsho
 NOT_A_RESULT = "not a result"
 SNAPSHOT_NOT_JSON = "the snapshot is not valid JSON: {detail}"
 NOT_A_SNAPSHOT = "not a pinlib result snapshot"
+SNAPSHOT_DAMAGED = "the snapshot is damaged: a value of the wrong kind"
+# printed by pinlib check and pinlib report after the error of a snapshot they ignore
+SNAPSHOT_IGNORED = ("the snapshot is ignored (no change list); `pinlib check {design} --save` "
+                    "replaces it")
 NEGATIVE_THRESHOLD = "a negative threshold"
 EDIT_CHANGES_MORE = "editing the design file would change more than the parts"
 EDIT_LOST_PART = "the edited design does not hold the new part"
@@ -427,6 +448,7 @@ MODULES = (
     "pinlib.engines.bench",
     "pinlib.cli.commands.measured",
     "pinlib.studies.compare",
+    "pinlib.studies.snapshotcheck",
     "pinlib.studies.candidates",
     "pinlib.studies.whatif",
     "pinlib.present.plotdata",

@@ -86,6 +86,9 @@ _LENGTH = {"mil": 25.4e-6, "mils": 25.4e-6, "thou": 25.4e-6, "in": 0.0254, "inch
 
 _NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"
 _PLAIN = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
+#: No quantity or threshold is longer; a longer text is refused before any pattern sees it
+#: (the patterns below take time that grows faster than the length of what they scan).
+MAX_QUANTITY_TEXT = 100
 _RKM = re.compile(r"^\s*(\d*)([RKkMGmunpµμ])(\d+)\s*(.*?)\s*$|^\s*(\d+)([RKkMG])\s*$")
 
 
@@ -170,6 +173,9 @@ def parse(text: object, unit: str, *, field: str | None = None) -> float:
                          f"\"{text} {example.split()[-1]}\"")
     if not isinstance(text, str):
         raise _fail(text, unit, field, M.TYPE_AS_QUANTITY.format(type=type(text).__name__))
+    if len(text) > MAX_QUANTITY_TEXT:
+        raise _fail(text, unit, field, M.QUANTITY_TOO_LONG.format(n=len(text),
+                                                                  limit=MAX_QUANTITY_TEXT))
     value = _parse_text(text, unit, field)
     if not math.isfinite(value):
         raise _fail(text, unit, field, M.NOT_FINITE)
@@ -300,6 +306,9 @@ def parse_threshold(text: object, *, field: str | None = None) -> Threshold:
                             expected=expected, hint=f"write \"{text} V\" or \"{text} VDD\"")
         raise UnitError(M.TYPE_AS_THRESHOLD.format(type=type(text).__name__), field=field,
                         value=text, expected=expected)
+    if len(text) > MAX_QUANTITY_TEXT:
+        raise UnitError(M.QUANTITY_TOO_LONG.format(n=len(text), limit=MAX_QUANTITY_TEXT),
+                        field=field, value=text, expected=expected)
     body = text.strip()
     if not body:
         raise UnitError(M.EMPTY_THRESHOLD, field=field, value=text, expected=expected)

@@ -13,8 +13,10 @@ it answers with the line of the nearest enclosing key.
 from __future__ import annotations
 
 import contextlib
+import errno
 import os
 import re
+import stat
 import sys
 import tempfile
 from pathlib import Path
@@ -33,7 +35,19 @@ _KEY = r'(?:[A-Za-z0-9_-]+|"[^"]*"|\'[^\']*\')'
 _DOTTED = rf"{_KEY}(?:\s*\.\s*{_KEY})*"
 _HEADER = re.compile(rf"^\s*\[(\[)?\s*({_DOTTED})\s*\]\]?\s*(?:#.*)?$")
 _ASSIGN = re.compile(rf"^\s*({_DOTTED})\s*=\s*(.*)$")
-_INLINE_KEY = re.compile(rf"({_KEY})\s*=")
+# The keys of inline tables, found in one pass: runs of ordinary characters and whole
+# strings are skipped as single tokens, and a key is looked for only right after "{" or
+# ",".  (An unanchored search for KEY = took time quadratic in a long run of key
+# characters: a 20,000-character description took seconds, 2 MB never finished.)
+_INLINE_TOKEN = re.compile(
+    rf"""[^"'{{,]+|"[^"\\]*(?:\\.[^"\\]*)*"?|'[^']*'?|[{{,]\s*(?:({_DOTTED})\s*=)?""")
+
+
+def _inline_keys(text: str) -> list[tuple]:
+    """The key paths written as ``{ key = ...`` or ``, a.b = ...`` in ``text``, each a
+    tuple of names (time linear in the length of ``text``)."""
+    return [tuple(_split_dotted(m.group(1))) for m in _INLINE_TOKEN.finditer(text)
+            if m.group(1)]
 
 
 def _split_dotted(text: str) -> list[str]:
@@ -56,8 +70,8 @@ def line_index(text: str) -> dict[tuple, int]:
             if stripped and stripped[0] not in "]#":
                 pos = array_items[open_array]
                 index.setdefault(open_array + (pos,), number)
-                for key in _INLINE_KEY.findall(line):
-                    index.setdefault(open_array + (pos, key.strip("\"'")), number)
+                for key in _inline_keys(line):
+                    index.setdefault(open_array + (pos,) + key, number)
                 array_items[open_array] = pos + 1
             depth += line.count("[") - line.count("]")
             if depth <= 0:
@@ -80,8 +94,8 @@ def line_index(text: str) -> dict[tuple, int]:
             path = table + tuple(_split_dotted(a.group(1)))
             index.setdefault(path, number)
             rest = a.group(2)
-            for key in _INLINE_KEY.findall(rest):
-                index.setdefault(path + (key.strip("\"'"),), number)
+            for key in _inline_keys(rest):
+                index.setdefault(path + key, number)
             if rest.lstrip().startswith("[") and rest.count("[") > rest.count("]"):
                 open_array, depth = path, rest.count("[") - rest.count("]")
                 array_items[path] = 0
@@ -121,17 +135,33 @@ def line_of(index: dict[tuple, int], path) -> int | None:
     return None
 
 
-def load(path: str | os.PathLike, *, error=InputError) -> tuple[dict, str]:
-    """Read and parse a TOML file; return (data, text).  Errors name file and line."""
+#: The largest file :func:`load` reads unless told otherwise (a design of hundreds of
+#: buses is well under 1 MB); the library reads part files under a lower limit.
+MAX_FILE_BYTES = 16 * 2**20
+#: Arrays and tables nested deeper than this are refused: pinlib's files nest 5 or 6
+#: levels, and the TOML parser itself fails near 500.
+MAX_NESTING = 64
+
+
+def load(path: str | os.PathLike, *, error=InputError,
+         max_bytes: int = MAX_FILE_BYTES) -> tuple[dict, str]:
+    """Read and parse a TOML file; return (data, text).  Errors name file and line.
+
+    Only a regular file is read (a FIFO, a device or a folder is refused without
+    waiting on it), and only up to ``max_bytes``.
+    """
     p = Path(path)
+    raw = read_regular(p, error=error, max_bytes=max_bytes)
     try:
-        text = p.read_text(encoding="utf-8")
-    except FileNotFoundError:
-        raise error(M.FILE_NOT_FOUND, file=str(p)) from None
+        text = raw.decode("utf-8")
     except UnicodeDecodeError as exc:
-        raise error(M.NOT_UTF8, file=str(p), hint=str(exc)) from None
-    except OSError as exc:
-        raise error(M.CANNOT_READ.format(reason=exc.strerror), file=str(p)) from None
+        line = raw.count(b"\n", 0, exc.start) + 1
+        column = exc.start - (raw.rfind(b"\n", 0, exc.start) + 1) + 1
+        raise error(M.NOT_UTF8, file=str(p), line=line,
+                    hint=M.NOT_UTF8_WHERE.format(byte=f"0x{raw[exc.start]:02x}",
+                                                 column=column)) from None
+    if "\r" in text:  # as a file opened in text mode reads it
+        text = text.replace("\r\n", "\n").replace("\r", "\n")
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
@@ -139,7 +169,86 @@ def load(path: str | os.PathLike, *, error=InputError) -> tuple[dict, str]:
         m = re.search(r"line (\d+)", msg)
         raise error(M.NOT_TOML.format(detail=msg), file=str(p),
                     line=int(m.group(1)) if m else None) from None
+    except RecursionError:
+        raise error(M.NESTED_TOO_DEEP.format(limit=MAX_NESTING), file=str(p),
+                    line=_deep_line(text)) from None
+    deep = _too_deep(data)
+    if deep is not None:
+        raise error(M.NESTED_TOO_DEEP.format(limit=MAX_NESTING), file=str(p),
+                    line=_line_within(line_index(text), deep) or _deep_line(text),
+                    field=dotted(deep[:8]) + ("…" if len(deep) > 8 else "")) from None
     return data, text
+
+
+def read_regular(path: Path, *, error=InputError, max_bytes: int = MAX_FILE_BYTES) -> bytes:
+    """The bytes of a regular file of at most ``max_bytes``; anything else is refused.
+
+    The file is opened without blocking and checked on the open descriptor, so a FIFO
+    named like a part file, ``/dev/zero`` behind a link or a folder is refused at once.
+    """
+    try:
+        fd = os.open(path, os.O_RDONLY | getattr(os, "O_NONBLOCK", 0) | getattr(os, "O_BINARY", 0))
+    except FileNotFoundError:
+        raise error(M.FILE_NOT_FOUND, file=str(path)) from None
+    except OSError as exc:
+        raise error(M.CANNOT_READ.format(reason=exc.strerror), file=str(path)) from None
+    try:
+        st = os.fstat(fd)
+        if stat.S_ISDIR(st.st_mode):
+            raise error(M.CANNOT_READ.format(reason=os.strerror(errno.EISDIR)), file=str(path))
+        if not stat.S_ISREG(st.st_mode):
+            raise error(M.NOT_A_REGULAR_FILE, file=str(path))
+        if st.st_size > max_bytes:
+            raise error(M.FILE_TOO_LARGE.format(size=st.st_size, limit=max_bytes),
+                        file=str(path))
+        chunks, size = [], 0
+        while size <= max_bytes:
+            chunk = os.read(fd, min(1 << 20, max_bytes + 1 - size))
+            if not chunk:
+                break
+            chunks.append(chunk)
+            size += len(chunk)
+    except OSError as exc:
+        raise error(M.CANNOT_READ.format(reason=exc.strerror), file=str(path)) from None
+    finally:
+        os.close(fd)
+    raw = b"".join(chunks)
+    if len(raw) > max_bytes:  # grew while being read
+        raise error(M.FILE_TOO_LARGE.format(size=len(raw), limit=max_bytes), file=str(path))
+    return raw
+
+
+def _too_deep(data) -> tuple | None:
+    """The path of the first value nested deeper than MAX_NESTING, or None (no recursion)."""
+    stack = [((), data)]
+    while stack:
+        path, value = stack.pop()
+        if len(path) > MAX_NESTING:
+            return path
+        if isinstance(value, dict):
+            stack.extend((path + (k,), v) for k, v in value.items())
+        elif isinstance(value, list):
+            stack.extend((path + (i,), v) for i, v in enumerate(value))
+    return None
+
+
+def _line_within(index: dict[tuple, int], path: tuple) -> int | None:
+    """The first line of ``path`` or of a key below it (a deep header names only its
+    whole path), else of its nearest enclosing key."""
+    below = [n for key, n in index.items() if key[: len(path)] == path]
+    return min(below) if below else line_of(index, path)
+
+
+def _deep_line(text: str) -> int | None:
+    """The first line where brackets and braces open deeper than MAX_NESTING (brackets
+    inside strings are counted too: this only places a message)."""
+    depth = 0
+    for number, line in enumerate(text.splitlines(), start=1):
+        opened = line.count("[") + line.count("{")
+        if depth + opened > MAX_NESTING:
+            return number
+        depth = max(0, depth + opened - line.count("]") - line.count("}"))
+    return None
 
 
 @contextlib.contextmanager
@@ -147,31 +256,84 @@ def file_lock(target: str | os.PathLike):
     """Hold an exclusive advisory lock beside ``target`` (``.name.lock``) while writing.
 
     Two processes recording into one file take turns; each reads the file afresh
-    inside the lock, so neither overwrites the other's value.  A lock file that is a
-    symbolic link is not followed (pinlib never makes one; opening it would create or
-    lock whatever it points to): the write is refused.
+    inside the lock, so neither overwrites the other's value.  A link is locked at the
+    file it leads to, so writers through the link and through the file take turns too.
+
+    The lock file is removed when the lock is let go (POSIX).  That is safe because a
+    writer that gets the lock checks that the file it locked is still the one at the
+    lock's path, and starts again when it was removed under it; the lock file itself
+    is never followed if it is a link: a lock file that is a link (pinlib never
+    makes one) refuses the write.
     """
-    target = Path(target)
+    target = Path(os.path.realpath(target))
     lock_path = target.with_name(f".{target.name}.lock")
     if lock_path.is_symlink():
         raise WriteError(M.CANNOT_LOCK.format(reason=M.LOCK_IS_A_LINK.format(
             lock=lock_path.name)), file=str(target))
     try:
-        fd = os.open(lock_path, os.O_RDWR | os.O_CREAT | getattr(os, "O_NOFOLLOW", 0), 0o644)
-    except OSError as exc:
-        raise WriteError(M.CANNOT_LOCK.format(reason=exc.strerror), file=str(target)) from None
-    try:
-        try:
-            import fcntl
-        except ImportError:  # pragma: no cover - Windows: msvcrt byte lock
+        import fcntl
+    except ImportError:  # pragma: no cover - Windows: msvcrt byte lock, file kept
+        fcntl = None
+    while True:
+        fd = _open_lock(lock_path, target)
+        if fcntl is None:  # pragma: no cover
             import msvcrt
 
             msvcrt.locking(fd, msvcrt.LK_LOCK, 1)
-        else:
-            fcntl.flock(fd, fcntl.LOCK_EX)
+            break
+        fcntl.flock(fd, fcntl.LOCK_EX)
+        if _same_file(fd, lock_path):
+            break
+        os.close(fd)  # removed by the writer before us: lock the new one
+    try:
         yield
     finally:
+        if fcntl is not None:
+            with contextlib.suppress(OSError):
+                os.unlink(lock_path)  # still ours: we hold its lock
         os.close(fd)
+
+
+def _open_lock(lock_path: Path, target: Path) -> int:
+    flags = os.O_RDWR | os.O_CREAT | getattr(os, "O_NOFOLLOW", 0)
+    try:
+        return os.open(lock_path, flags, 0o644)
+    except OSError as exc:
+        raise WriteError(M.CANNOT_LOCK.format(reason=exc.strerror), file=str(target)) from None
+
+
+def _same_file(fd: int, path: Path) -> bool:
+    try:
+        here = os.stat(path, follow_symlinks=False)
+    except OSError:
+        return False
+    st = os.fstat(fd)
+    return (here.st_dev, here.st_ino) == (st.st_dev, st.st_ino)
+
+
+#: A temporary file of :func:`atomic_write` older than this (seconds) was left by a
+#: writer that was stopped; the next write in its folder removes it.
+STALE_TEMPORARY_SECONDS = 600
+_TEMPORARY = re.compile(r"^\..+\.(?:toml|json|html|md|svg|png)\.[a-z0-9_]{8}\.tmp$")
+
+
+def _remove_stale_temporaries(folder: Path) -> None:
+    """Remove pinlib's own temporary files (``.NAME.XXXXXXXX.tmp``, regular files) left in
+    ``folder`` by writers that were stopped more than STALE_TEMPORARY_SECONDS ago."""
+    import time
+
+    old = time.time() - STALE_TEMPORARY_SECONDS
+    try:
+        entries = list(os.scandir(folder))
+    except OSError:
+        return
+    for entry in entries:
+        if not _TEMPORARY.match(entry.name):
+            continue
+        with contextlib.suppress(OSError):
+            st = entry.stat(follow_symlinks=False)
+            if stat.S_ISREG(st.st_mode) and st.st_mtime < old:
+                os.unlink(entry.path)
 
 
 def _umask() -> int:
@@ -183,12 +345,16 @@ def _umask() -> int:
 def atomic_write(path: str | os.PathLike, text: str) -> None:
     """Replace ``path`` with ``text`` atomically; on any failure the old file stays whole.
 
-    The text goes to a temporary file in the same folder, is flushed and synced, takes
-    the old file's permission bits (a new file those of the umask), and then replaces the
-    old file in one step.
+    When ``path`` is a link, the file it leads to is replaced (the link stays).  Stale
+    temporary files of stopped writers in the folder are removed first.  The text goes
+    to a temporary file in the same folder, is flushed and synced, takes the old file's
+    permission bits (a new file those of the umask), and then replaces the old file in
+    one step.
     """
-    path = Path(path)
+    # Through a link: the file it leads to is replaced, and the link stays a link.
+    path = Path(os.path.realpath(path)) if os.path.islink(path) else Path(path)
     folder = path.parent if str(path.parent) else Path(".")
+    _remove_stale_temporaries(folder)
     try:
         fd, tmp = tempfile.mkstemp(dir=folder, prefix=f".{path.name}.", suffix=".tmp")
     except OSError as exc:

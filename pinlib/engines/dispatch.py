@@ -11,7 +11,11 @@ from __future__ import annotations
 
 import os
 
+from pinlib.core import messages as M
+from pinlib.core.errors import PinlibError
 from pinlib.core.protocols import PROTOCOLS
+from pinlib.core.quantity import format_si
+from pinlib.core.tomlfile import dotted, line_index, line_of
 from pinlib.engines.memo import run_scope
 from pinlib.model.design import Bus, Design, load_design
 from pinlib.model.result import BusResult, DesignResult
@@ -46,8 +50,57 @@ def engine(protocol: str):
 
 
 def evaluate_bus(bus: Bus, design: Design) -> BusResult:
-    """Evaluate one bus with the engine of its protocol."""
-    return engine(bus.protocol).evaluate_bus(bus, design)
+    """Evaluate one bus with the engine of its protocol.
+
+    An error an engine meets without knowing the file (a value of a part refused at
+    the bus's supply, a geometry the line formulas refuse) is raised again naming where
+    it comes from: the part file and line of the pin's value, or the design file and the
+    line of the bus.
+    """
+    try:
+        return engine(bus.protocol).evaluate_bus(bus, design)
+    except PinlibError as err:
+        if err.file is not None:
+            raise
+        raise _located(err, bus, design) from None
+
+
+def _located(err: PinlibError, bus: Bus, design: Design) -> PinlibError:
+    index = line_index(design.text) if design.text else {}
+    bus_line = line_of(index, bus.loc)
+    here = f"{design.path}:{bus_line}" if design.path and bus_line else str(design.path)
+    pin_of = getattr(err, "pin_of", None)
+    device = next((d for d in bus.devices if pin_of and d.ref == pin_of[0]), None)
+    if device is not None and err.field == "vdd":  # the supply itself: where it is set
+        loc = device.loc + ("supply",) if device.supply is not None else bus.loc + ("supply",)
+        return type(err)(err.problem, file=str(design.path) if design.path else None,
+                         line=line_of(index, loc), field=dotted(loc), value=err.value,
+                         expected=err.expected, hint=err.hint)
+    if device is not None:
+        _, pin_name, vdd = pin_of
+        if device.supply is not None:  # the device's own rail: the line that sets it
+            own = line_of(index, device.loc + ("supply",))
+            here = f"{design.path}:{own}" if design.path and own else here
+        loc = ("pins", pin_name) + ((err.field,) if err.field else ())
+        files = design.library.files
+        value = getattr(device.part.pins.get(pin_name), err.field or "", None)
+        owner = getattr(value, "origin", None) or device.part_id
+        pf = files.get(owner) or files.get(device.part_id)
+        hint = M.PIN_VALUE_AT_SUPPLY.format(part=device.part_id, ref=device.ref,
+                                            bus=bus.id, vdd=format_si(vdd, "V"), where=here)
+        return type(err)(err.problem, file=str(pf.path) if pf else None,
+                         line=pf.line(loc) if pf else None, field=dotted(loc),
+                         value=err.value, expected=err.expected,
+                         hint=f"{err.hint}; {hint}" if err.hint else hint)
+    if err.field and err.field.startswith(("bus", "board")):  # a place in the design
+        field, hint = err.field, err.hint
+    else:  # a value computed from the bus: named in the hint
+        field = dotted(bus.loc) or None
+        hint = M.MET_EVALUATING_BUS.format(bus=bus.id, field=err.field or "?")
+        hint = f"{err.hint}; {hint}" if err.hint else hint
+    return type(err)(err.problem, file=str(design.path) if design.path else None,
+                     line=bus_line, field=field, value=err.value, expected=err.expected,
+                     hint=hint)
 
 
 def check_design(design: Design) -> DesignResult:

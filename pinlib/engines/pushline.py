@@ -66,7 +66,7 @@ import numpy as np
 
 from pinlib.core import eseries
 from pinlib.core import messages as M
-from pinlib.core.errors import DesignError, InputError
+from pinlib.core.errors import DesignError, InputError, PinlibError
 from pinlib.core.protocols import protocol
 from pinlib.core.quantity import format_si
 from pinlib.engines import memo
@@ -702,7 +702,13 @@ def _open_drain_model(pin: Pin, vdd: float, r_pullup: float, notes: list) -> drv
 def _driver_model(ep: Endpoint, notes: list) -> drv.Driver:
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
-        model = drv.driver_from_pin(ep.pin, ep.vdd)
+        try:
+            model = drv.driver_from_pin(ep.pin, ep.vdd)
+        except PinlibError as err:
+            # the pin's values refused at this supply: say whose pin, for the dispatcher to
+            # name the part file and the design line (pinlib.engines.dispatch)
+            err.pin_of = (ep.device.ref, ep.pin_name, ep.vdd)
+            raise
     for w in caught:
         notes.append(f"{ep.label}: {w.message}")
     for n in model.notes:

@@ -47,6 +47,19 @@ BUILTIN_DIR = Path(os.environ.get("PINLIB_BUILTIN",
 
 _NOT_INHERITED = {"id", "extends", "abstract"}
 
+#: Bounds of what the library reads (each refusal names the limit): a part file holds
+#: a few kilobytes; a library folder is a folder of part files, not a disk.
+MAX_PART_BYTES = 2**20
+MAX_FOLDER_DEPTH = 16
+MAX_FOLDER_ENTRIES = 50_000
+MAX_PART_FILES = 10_000
+MAX_EXTENDS_DEPTH = 32
+#: Folders a library may not be (nor lie in, for the first group: kernel and device
+#: file systems); a file system root and the home folder itself are refused as well.
+_PSEUDO_FOLDERS = ("/proc", "/sys", "/dev")
+_SYSTEM_FOLDERS = ("/usr", "/etc", "/bin", "/sbin", "/lib", "/lib64", "/boot", "/var",
+                   "/run", "/home", "/Users", "/root")
+
 
 @dataclass
 class PartFile:
@@ -56,18 +69,23 @@ class PartFile:
     raw: dict
     text: str
     builtin: bool
+    _index: dict | None = field(default=None, repr=False, compare=False)
 
     @property
     def id(self) -> str:
         return str(self.raw.get("id", ""))
 
     def line(self, loc) -> int | None:
-        return line_of(line_index(self.text), loc)
+        # the index is built once: a file with thousands of problems is scanned once,
+        # not once a problem
+        if self._index is None:
+            self._index = line_index(self.text)
+        return line_of(self._index, loc)
 
 
 def read_part_file(path: Path, *, builtin: bool = False) -> PartFile:
     """Read one part file, checking the format tag and the id."""
-    raw, text = load(path, error=LibraryError)
+    raw, text = load(path, error=LibraryError, max_bytes=MAX_PART_BYTES)
     pf = PartFile(Path(path), raw, text, builtin)
     fmt = raw.get("format")
     if fmt != FORMAT:
@@ -118,30 +136,36 @@ def pydantic_errors(exc: ValidationError, *, file=None, locate=None, cls=Library
     return out
 
 
-def _merge(parent: dict, child: dict, parent_origin: dict, child_id: str, prefix=()) -> tuple:
-    """Deep-merge ``child`` over ``parent``; return (merged, origin map)."""
+def _merge(parent: dict, child: dict, parent_origin: dict, child_id: str, top=True) -> tuple:
+    """Deep-merge ``child`` over ``parent``; return (merged, origin map).
+
+    The origin map (key path -> part id) is kept grouped by each path's first key, so
+    that replacing one key's values costs the size of that key's entries, not of the
+    whole map (a part of thousands of keys merged in time linear in its size).
+    """
     merged = dict(parent)
-    origin = {k: v for k, v in parent_origin.items()}
+    groups: dict = {}
+    for k, v in parent_origin.items():
+        groups.setdefault(k[0] if k else None, {})[k] = v
     for key, value in child.items():
-        path = prefix + (key,)
-        if not prefix and key in _NOT_INHERITED:
+        if top and key in _NOT_INHERITED:
             merged[key] = value
             continue
         if (isinstance(value, dict) and isinstance(merged.get(key), dict)
                 and not _is_value_table(value)):
             sub, sub_origin = _merge(merged[key], value,
-                                     {k[len(path):]: v for k, v in origin.items()
-                                      if k[: len(path)] == path}, child_id)
+                                     {k[1:]: v for k, v in groups.get(key, {}).items()},
+                                     child_id, top=False)
             merged[key] = sub
-            origin = {k: v for k, v in origin.items() if k[: len(path)] != path}
-            origin.update({path + k: v for k, v in sub_origin.items()})
+            groups[key] = {(key,) + k: v for k, v in sub_origin.items()}
         else:
             merged[key] = value
-            origin = {k: v for k, v in origin.items() if k[: len(path)] != path}
-            origin[path] = child_id
-    for key in _NOT_INHERITED:
-        if not prefix and key not in child:
-            merged.pop(key, None)
+            groups[key] = {(key,): child_id}
+    origin = {k: v for group in groups.values() for k, v in group.items()}
+    if top:
+        for key in _NOT_INHERITED:
+            if key not in child:
+                merged.pop(key, None)
     return merged, origin
 
 
@@ -391,8 +415,84 @@ def library_folders(extra: Iterable[str | os.PathLike] = (), *, env: bool = True
     return folders
 
 
+def _system_folder(real: Path) -> bool:
+    """Whether a resolved folder is one a library may not be (see _SYSTEM_FOLDERS)."""
+    if real.parent == real:  # a file system root: /, C:\\
+        return True
+    text = real.as_posix()
+    if any(text == f or text.startswith(f + "/") for f in _PSEUDO_FOLDERS):
+        return True
+    try:
+        home = Path.home().resolve()
+    except (RuntimeError, OSError):  # no home folder known
+        home = None
+    return text in _SYSTEM_FOLDERS or real == home
+
+
+def part_paths(folder: Path, *, follow_links: bool = False) -> tuple[list[Path], list]:
+    """The ``*.toml`` files of a library folder and its subfolders, and the problems met.
+
+    A folder that resolves to a system folder, that nests deeper than
+    :data:`MAX_FOLDER_DEPTH`, or that holds more than :data:`MAX_FOLDER_ENTRIES` entries or
+    :data:`MAX_PART_FILES` part files is refused (a LibraryError, field ``library``).
+    A link that leads out of the folder is not followed unless ``follow_links`` (a
+    problem each); every real folder and file is read once however many links lead to it.
+    """
+    root = folder.resolve()
+    if _system_folder(root):
+        raise LibraryError(M.LIBRARY_IS_SYSTEM_FOLDER.format(real=root), file=str(folder),
+                           field="library")
+    found: dict[Path, Path] = {}  # real file -> the path it was found by
+    problems: list[LibraryError] = []
+    seen = {root}
+    stack = [(folder, 0)]
+    entries = 0
+    while stack:
+        here, depth = stack.pop()
+        try:
+            listing = list(os.scandir(here))
+        except OSError as exc:
+            problems.append(LibraryError(M.CANNOT_READ.format(reason=exc.strerror),
+                                         file=str(here)))
+            continue
+        entries += len(listing)
+        if entries > MAX_FOLDER_ENTRIES:
+            raise LibraryError(M.LIBRARY_TOO_BIG.format(limit=MAX_FOLDER_ENTRIES),
+                               file=str(folder), field="library")
+        for entry in listing:
+            path = Path(entry.path)
+            try:
+                is_dir = entry.is_dir()  # through a link
+                real = path.resolve() if entry.is_symlink() else None
+            except OSError:
+                continue
+            if real is not None and not follow_links and not real.is_relative_to(root):
+                if is_dir or entry.name.endswith(".toml"):
+                    problems.append(LibraryError(M.LINK_OUT_OF_LIBRARY, file=str(path),
+                                                 hint=f"it leads to {real}"))
+                continue
+            real = real or path.resolve()
+            if is_dir:
+                if real in seen:
+                    continue
+                if depth >= MAX_FOLDER_DEPTH or _system_folder(real):
+                    raise LibraryError(M.LIBRARY_TOO_DEEP.format(limit=MAX_FOLDER_DEPTH)
+                                       if depth >= MAX_FOLDER_DEPTH else
+                                       M.LIBRARY_IS_SYSTEM_FOLDER.format(real=real),
+                                       file=str(path), field="library")
+                seen.add(real)
+                stack.append((path, depth + 1))
+            elif entry.name.endswith(".toml") and real not in found:
+                found[real] = path
+                if len(found) > MAX_PART_FILES:
+                    raise LibraryError(M.LIBRARY_TOO_MANY_FILES.format(limit=MAX_PART_FILES),
+                                       file=str(folder), field="library")
+    return sorted(found.values()), problems
+
+
 def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = True,
-                 env: bool = True, strict: bool = False, lazy: bool = False) -> Library:
+                 env: bool = True, strict: bool = False, lazy: bool = False,
+                 follow_links: bool = False) -> Library:
     """Load and merge the library.
 
     Parameters
@@ -410,12 +510,19 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
         Read every file now but validate each part when it is first used
         (:class:`LazyParts`); ``Library.problems`` then lists a part's problems once the
         part has been asked for, or after ``Library.resolve_all()``.
+    follow_links : bool
+        Follow links that lead out of a library folder (by default each is a problem
+        and is not read).  Whatever this says, only regular files of at most
+        :data:`MAX_PART_BYTES` are read, and the walk of each folder is bounded
+        (:func:`part_paths`).
     """
     lib = Library()
     found: dict[str, PartFile] = {}
     team_seen: dict[str, Path] = {}
     sources = ([(BUILTIN_DIR, True)] if builtin else []) + [
         (Path(f), False) for f in library_folders(folders, env=env)]
+    # A folder that is a system folder or too big to be a library is refused whatever
+    # ``strict`` says: its parts would be a guess, and walking it may never end.
     loaded: set[Path] = set()
     for folder, is_builtin in sources:
         if not folder.is_dir():
@@ -431,7 +538,11 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
             continue
         loaded.add(folder.resolve())
         lib.folders.append(folder)
-        for path in sorted(folder.rglob("*.toml")):
+        paths, walk_problems = part_paths(folder, follow_links=follow_links)
+        if walk_problems and strict:
+            raise walk_problems[0]
+        lib.problems.extend(walk_problems)
+        for path in paths:
             try:
                 pf = read_part_file(path, builtin=is_builtin)
             except LibraryError as err:
@@ -482,27 +593,41 @@ def _resolve(pid: str, files: dict[str, PartFile]) -> Part:
 
 
 def _merged_raw(pid: str, files: dict[str, PartFile], stack: list[str]):
-    pf = files[pid]
-    parent = pf.raw.get("extends")
-    if parent is None:
-        merged, origin = _merge({}, pf.raw, {}, pid)
-        return merged, origin, [pid]
-    if not isinstance(parent, str):
-        raise LibraryError(M.EXTENDS_NOT_AN_ID, file=str(pf.path),
-                           line=pf.line(("extends",)), field="extends", value=parent)
-    if parent in stack + [pid]:
-        cycle = " -> ".join(stack + [pid, parent])
-        raise LibraryError(M.EXTENDS_CYCLE, file=str(pf.path), line=pf.line(("extends",)),
-                           field="extends", value=parent,
-                           hint=f"{cycle}; files: " + ", ".join(
-                               str(files[p].path) for p in stack + [pid] if p in files))
-    if parent not in files:
-        import difflib
+    """The raw table of ``pid`` merged over its ancestors: (merged, origin, ids used,
+    root first).  The chain is followed in a loop and bounded by MAX_EXTENDS_DEPTH, so a
+    long chain is an error naming the file, not a RecursionError."""
+    chain = list(stack) + [pid]  # child last; followed towards the root
+    while True:
+        pf = files[chain[-1]]
+        parent = pf.raw.get("extends")
+        if parent is None:
+            break
+        if not isinstance(parent, str):
+            raise LibraryError(M.EXTENDS_NOT_AN_ID, file=str(pf.path),
+                               line=pf.line(("extends",)), field="extends", value=parent)
+        if parent in chain:
+            cycle = " -> ".join(chain + [parent])
+            raise LibraryError(M.EXTENDS_CYCLE, file=str(pf.path), line=pf.line(("extends",)),
+                               field="extends", value=parent,
+                               hint=f"{cycle}; files: " + ", ".join(
+                                   str(files[p].path) for p in chain if p in files))
+        if parent not in files:
+            import difflib
 
-        near = difflib.get_close_matches(parent, list(files), n=3, cutoff=0.4)
-        raise LibraryError(M.EXTENDS_UNKNOWN, file=str(pf.path),
-                           line=pf.line(("extends",)), field="extends", value=parent,
-                           hint=("closest: " + ", ".join(near)) if near else None)
-    base, base_origin, used = _merged_raw(parent, files, stack + [pid])
-    merged, origin = _merge(base, pf.raw, base_origin, pid)
-    return merged, origin, used + [pid]
+            near = difflib.get_close_matches(parent, list(files), n=3, cutoff=0.4)
+            raise LibraryError(M.EXTENDS_UNKNOWN, file=str(pf.path),
+                               line=pf.line(("extends",)), field="extends", value=parent,
+                               hint=("closest: " + ", ".join(near)) if near else None)
+        if len(chain) > MAX_EXTENDS_DEPTH:
+            start = files[chain[len(stack)]]
+            raise LibraryError(M.EXTENDS_TOO_DEEP.format(limit=MAX_EXTENDS_DEPTH),
+                               file=str(start.path), line=start.line(("extends",)),
+                               field="extends", value=start.raw.get("extends"),
+                               hint=f"{chain[len(stack)]} -> {chain[len(stack) + 1]} -> … -> "
+                                    f"{parent}")
+        chain.append(parent)
+    used = chain[len(stack):][::-1]  # root first
+    merged, origin = {}, {}
+    for part_id in used:
+        merged, origin = _merge(merged, files[part_id].raw, origin, part_id)
+    return merged, origin, used

@@ -160,6 +160,14 @@ class Supply(_Model):
     max: Voltage
     typ: Voltage | None = None
 
+    @field_validator("min")
+    @classmethod
+    def _positive(cls, v):
+        # a part runs from a positive supply; 0 V once divided by zero in the engines
+        if not v.value > 0.0:
+            raise ValueError(M.SUPPLY_MIN_NOT_POSITIVE)
+        return v
+
     @field_validator("max")
     @classmethod
     def _ordered(cls, v, info):

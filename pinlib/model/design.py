@@ -23,7 +23,7 @@ from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, ValidationEr
 
 from pinlib.core import messages as M
 from pinlib.core import protocols
-from pinlib.core.errors import DesignError, PinlibError
+from pinlib.core.errors import DesignError, LibraryError, PinlibError
 from pinlib.core.quantity import format_si, parse
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_index, line_of, load
@@ -408,8 +408,15 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
                                   **at(("library", i)))
         # PINLIB_LIBRARY and the caller's folders: an error naming the setting
         require_folders(library_folders)
-        library = load_library(own + [Path(p) for p in library_folders],
-                               lazy=True)  # only the parts the design names
+        try:
+            library = load_library(own + [Path(p) for p in library_folders],
+                                   lazy=True)  # only the parts the design names
+        except LibraryError as exc:
+            if exc.field != "library":
+                raise
+            # a refused folder (a system folder, a walk past its bounds): where it is named
+            raise DesignError(exc.problem, field="library", value=exc.file,
+                              hint=exc.hint, **at(("library",))) from None
     return _build(raw, path, library, text, swaps or {}, index)
 
 
@@ -432,6 +439,10 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict,
             raise err(M.MICROSTRIP_NEEDS_HEIGHT, loc + ("height",))
         if g.kind == "stripline" and g.height is None and g.spacing is None:
             raise err(M.STRIPLINE_NEEDS_SPACING, loc + ("spacing",))
+        if g.kind == "stripline" and g.spacing is not None and not g.spacing > g.thickness:
+            raise err(M.SPACING_NOT_ABOVE_COPPER, loc + ("spacing",),
+                      value=format_si(g.spacing, "m"),
+                      expected=f"more than the copper thickness, {format_si(g.thickness, 'm')}")
 
     swapped: set[str] = set()
 
@@ -457,6 +468,8 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict,
         if part.category == "cable":
             raise err(M.CABLE_AS_DEVICE, loc + ("part",),
                       value=part_id)
+        if d.supply is not None and not d.supply > 0:
+            raise err(M.SUPPLY_NOT_POSITIVE, loc + ("supply",), value=format_si(d.supply, "V"))
         role = "peripheral" if d.role == "target" else d.role
         return Device(d.ref, part_id, part, role, d.supply, d.switched, d.series_resistor,
                       d.side, d.internal_pullups, d.pin, d.capacitance_tolerance, loc)

@@ -986,15 +986,68 @@ class _Html:
 # =========================================================================== Markdown
 
 
-def _m(text) -> str:
-    """Text for a Markdown table cell: no pipes, no newlines, no raw HTML."""
-    s = str(text).replace("\\", "\\\\").replace("|", "\\|").replace("\n", " ")
-    return s.replace("<", "&lt;").replace(">", "&gt;")
+# Every user-written text (titles, ids, descriptions, sources, part values, paths) goes
+# through _mt: one line (newlines and runs of spaces become one space), the characters
+# that start inline Markdown escaped (emphasis, code, links and images, tables,
+# strikethrough), the HTML ones as entities, and a block marker at its start (a heading,
+# a list, a quote) made plain.  It cannot end a table, open a code block or add an image.
+_MD_INLINE = str.maketrans({**{c: "\\" + c for c in "\\`*_[]|~"},
+                            "<": "&lt;", ">": "&gt;", "&": "&amp;"})
+# a heading (# x), a bullet (- x, + x), a rule or heading underline (---, ===), a
+# numbered item (1. x): each only with the space or line end that makes it one
+_MD_LINE_START = re.compile(r"^(?:(#{1,6}|[+-])(?=\s|$)|([=-])(?=[=\-\s]*$)"
+                            r"|(\d{1,9})([.)])(?=\s|$))")
 
 
 def _mt(text) -> str:
-    """Text for a Markdown paragraph: no raw HTML."""
-    return str(text).replace("<", "&lt;").replace(">", "&gt;")
+    """User text for Markdown: one line in which nothing is markup (see above)."""
+    s = " ".join(str(text).split()).translate(_MD_INLINE)
+    return _MD_LINE_START.sub(_plain_start, s, count=1)
+
+
+def _plain_start(m: re.Match) -> str:
+    if m.group(3):
+        return m.group(3) + "\\" + m.group(4)
+    return "\\" + m.group(0)
+
+
+def _m(text) -> str:
+    """Text for a Markdown table cell (``|`` is escaped by _mt as well)."""
+    return _mt(text)
+
+
+def _code(text) -> str:
+    """Text shown as inline code, whatever backticks it holds: the fence is longer than
+    any run of backticks inside (CommonMark code spans), and the text is one line."""
+    s = " ".join(str(text).split())
+    run = max((len(r) for r in re.findall(r"`+", s)), default=0)
+    fence = "`" * (run + 1)
+    pad = " " if s.startswith("`") or s.endswith("`") or not s else ""
+    return f"{fence}{pad}{s}{pad}{fence}".replace("|", "\\|")
+
+
+def _with_code(template: str, **fields) -> str:
+    """A sentence of pinlib's whose `...` parts are code, filled with ``fields`` (a user's
+    path): the code parts through _code, the rest through _mt, the spaces between kept."""
+    out = []
+    for i, piece in enumerate(template.split("`")):
+        piece = piece.format(**fields)
+        if i % 2:
+            out.append(_code(piece))
+        elif piece.strip():
+            lead = " " if piece[0].isspace() and i else ""
+            tail = " " if piece[-1].isspace() else ""
+            out.append(lead + _mt(piece) + tail)
+        else:
+            out.append(" " if piece and i else "")
+    return "".join(out)
+
+
+def _fenced(text: str) -> list[str]:
+    """A fenced block of ``text`` whose fence no line of the text can close."""
+    run = max((len(r) for r in re.findall(r"`+", text)), default=0)
+    fence = "`" * max(3, run + 1)
+    return [fence, text, fence]
 
 
 def _row(cells) -> str:
@@ -1021,7 +1074,7 @@ class _Markdown:
         self.w(f"# Design review: {_mt(res.design)}", "",
                f"> **Caution.** {_mt(CAUTION)}", "")
         if res.path:
-            self.w(f"Design file: `{res.path}`", "")
+            self.w(f"Design file: {_code(res.path)}", "")
         desc = getattr(r.design, "description", None)
         if desc:
             self.w(_mt(desc), "")
@@ -1120,7 +1173,7 @@ class _Markdown:
             for k, v in _part_facts(p):
                 self.w(f"- {k}: {_mt(v)}")
             self.w("")
-            rows = [[f"`{value_label(key)}`", _m(_part_value(e)), _m(_typ(e)), _m(_basis(e)),
+            rows = [[_code(value_label(key)), _m(_part_value(e)), _m(_typ(e)), _m(_basis(e)),
                      _m(e.get("source", "—")), _m(_origin(e, p.get("part", "")))]
                     for key, e in (p.get("values") or {}).items()]
             self.w(*_table(["Value", "Resolved", "Typical", "Basis", "Source", "Set in"],
@@ -1130,6 +1183,8 @@ class _Markdown:
         cl = self.r.changes
         self.w("## Changes against the snapshot", "")
         if cl is None:
-            self.w(_mt(_no_snapshot_text(self.r.design)), "")
+            path = getattr(self.r.design, "path", None)
+            self.w(_with_code(M.NO_SNAPSHOT_TO_COMPARE, design=str(path) if path else "DESIGN"),
+                   "")
             return
-        self.w("```", cl.format_text().rstrip("\n"), "```", "")
+        self.w(*_fenced(cl.format_text().rstrip("\n")), "")

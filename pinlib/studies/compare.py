@@ -36,12 +36,13 @@ from pinlib.core import messages as M
 from pinlib.core import protocols
 from pinlib.core.errors import InputError
 from pinlib.core.quantity import Threshold, format_si, format_threshold, parse_ratio
-from pinlib.core.tomlfile import atomic_write
+from pinlib.core.tomlfile import atomic_write, read_regular
 from pinlib.library.loader import BUILTIN_DIR
 from pinlib.library.schema import Part
 from pinlib.library.values import Sourced
 from pinlib.model.result import FORMAT as RESULT_FORMAT
 from pinlib.model.result import json_number
+from pinlib.studies.snapshotcheck import check_snapshot
 from pinlib.studies.snapshotfile import snapshot_path
 
 __all__ = [
@@ -296,37 +297,56 @@ def save_snapshot(design, result, path=None) -> Path:
     return target
 
 
+#: The largest snapshot read (the result of a design of hundreds of buses is a few MB).
+MAX_SNAPSHOT_BYTES = 64 * 2**20
+
+
 def load_snapshot(path) -> dict | None:
     """Read a snapshot; None when the file does not exist.
 
     Raises
     ------
     InputError
-        When the file is not JSON or not a pinlib result.
+        When the file is not a regular file of at most :data:`MAX_SNAPSHOT_BYTES`, not
+        UTF-8 JSON, not a pinlib result, or not shaped as a snapshot
+        (:func:`pinlib.studies.snapshotcheck.check_snapshot` names the field).
     """
     path = Path(path)
+    hint = "delete it or save a new one with `pinlib check DESIGN --save`"
     try:
-        text = path.read_text(encoding="utf-8")
-    except FileNotFoundError:
-        return None
-    except OSError as exc:
-        raise InputError(M.CANNOT_READ.format(reason=exc.strerror), file=str(path)) from None
+        raw = read_regular(path, max_bytes=MAX_SNAPSHOT_BYTES)
+    except InputError as exc:
+        if exc.problem == M.FILE_NOT_FOUND:
+            return None
+        raise
     try:
-        data = json.loads(text)
+        data = json.loads(raw.decode("utf-8"))
+    except UnicodeDecodeError:
+        raise InputError(M.NOT_UTF8, file=str(path), hint=hint) from None
     except json.JSONDecodeError as exc:
         raise InputError(M.SNAPSHOT_NOT_JSON.format(detail=exc.msg), file=str(path),
-                         line=exc.lineno,
-                         hint="delete it or save a new one with `pinlib check DESIGN --save`"
-                         ) from None
+                         line=exc.lineno, hint=hint) from None
+    except RecursionError:
+        raise InputError(M.SNAPSHOT_NOT_JSON.format(detail="nested too deep"),
+                         file=str(path), hint=hint) from None
     if not isinstance(data, dict) or data.get("format") != RESULT_FORMAT:
         raise InputError(M.NOT_A_SNAPSHOT, file=str(path), field="format",
                          value=data.get("format") if isinstance(data, dict) else None,
                          expected=f'"{RESULT_FORMAT}"')
+    check_snapshot(data, path)
     return data
 
 
-def compare_with_snapshot(design, result, threshold: float = DEFAULT_THRESHOLD):
+def compare_with_snapshot(design, result, threshold: float = DEFAULT_THRESHOLD, *,
+                          damaged: list | None = None):
     """Compare a fresh result with the design's saved snapshot.
+
+    Parameters
+    ----------
+    damaged : list, optional
+        Given, a snapshot that cannot be read or is damaged (the InputError of
+        :func:`load_snapshot`) is appended to it and ignored: None is returned, as for
+        no snapshot.  Not given, that error is raised.
 
     Returns
     -------
@@ -335,7 +355,13 @@ def compare_with_snapshot(design, result, threshold: float = DEFAULT_THRESHOLD):
     """
     if getattr(design, "path", None) is None:
         return None
-    old = load_snapshot(snapshot_path(design))
+    try:
+        old = load_snapshot(snapshot_path(design))
+    except InputError as exc:
+        if damaged is None:
+            raise
+        damaged.append(exc)
+        return None
     if old is None:
         return None
     return compare(old, snapshot(design, result), threshold=threshold)

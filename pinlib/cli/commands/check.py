@@ -115,7 +115,11 @@ def run(args) -> int:
 
         threshold = DEFAULT_THRESHOLD if args.threshold is None else args.threshold
         # Compare before saving, or the run would compare with itself.
-        changes = compare_with_snapshot(design, result, threshold)
+        damaged: list = []
+        changes = compare_with_snapshot(design, result, threshold, damaged=damaged)
+        for err in damaged:  # named, then ignored: the check itself still runs
+            print(f"pinlib: warning: {err.message}; "
+                  + M.SNAPSHOT_IGNORED.format(design=args.design), file=sys.stderr)
     extra = _what_if(design, args)
     if args.json:
         out = result.to_json()

@@ -534,7 +534,9 @@ def _run_check(args) -> int:
             problems.append(LibraryError(M.PART_DOES_NOT_LOAD, file=str(pf.path),
                                          field="extends", hint="a problem in a file it extends"))
             problems += related
-        n_files = len({str(p) for p in folder.rglob("*.toml")})
+        from pinlib.library.loader import part_paths
+
+        n_files = len(part_paths(folder)[0])  # the files the bounded walk read
         scope = _rel(folder)
     if args.json:
         print(json.dumps({"checked": scope, "files": n_files,

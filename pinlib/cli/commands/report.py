@@ -137,7 +137,11 @@ def run(args) -> int:
     design = load_design(args.design, library_folders=args.library)
     result = check_design(design)
     threshold = DEFAULT_THRESHOLD if args.threshold is None else args.threshold
-    changes = compare_with_snapshot(design, result, threshold)
+    damaged: list = []
+    changes = compare_with_snapshot(design, result, threshold, damaged=damaged)
+    for err in damaged:  # named, then ignored: the report is written without changes
+        print(f"pinlib: warning: {err.message}; "
+              + M.SNAPSHOT_IGNORED.format(design=args.design), file=sys.stderr)
     mc = None
     if args.monte_carlo is not None:
         mc = _monte_carlo(design, args.monte_carlo, args.seed)

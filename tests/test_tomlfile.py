@@ -1,0 +1,212 @@
+"""pinlib.core.tomlfile: line numbers for messages, and what reading and writing refuse.
+
+Each test builds its bad file in ``tmp_path`` and runs the code a user runs; the inputs
+are those that once ended in a hang or a traceback.
+"""
+
+from __future__ import annotations
+
+import textwrap
+
+from pinlib.core.errors import InputError
+from pinlib.core.tomlfile import line_index, line_of, tomllib
+
+
+def test_line_index_finds_inline_keys_and_dotted_ones():
+    text = textwrap.dedent("""\
+        title = "x, y = 3"
+        trace = { length = "5 cm", "odd key" = 1, a.b = 2, n = { z = 1 } }
+        devices = [
+          { ref = "U1", part = "p,q = r" },
+        ]
+        """)
+    index = line_index(text)
+    assert index[("trace", "length")] == 2
+    assert index[("trace", "odd key")] == 2
+    assert index[("trace", "a", "b")] == 2
+    assert index[("trace", "n")] == 2
+    assert index[("devices", 0, "part")] == 4
+    assert ("title", "y") not in index  # a "key =" inside a string is no key
+    assert ("devices", 0, "q") not in index
+
+
+def test_line_lookup_is_linear_in_a_long_value():
+    # Once quadratic: 20,000 characters took seconds and 2 MB never finished.  Each of
+    # these 2 MB lines must now be indexed at once (run, not timed: a quadratic scan
+    # would not end within the test run).
+    n = 2_000_000
+    cases = {  # text -> (a key path, its line)
+        f'description = "{"a" * n}"\nlast = 1\n': (("last",), 2),
+        f"x = {'a' * n}\nlast = 1\n": (("last",), 2),
+        f'x = {{ a = "{"b," * (n // 2)}", c = 1 }}\n': (("x", "c"), 1),
+        f"x = {{ {'a.' * (n // 2)}\nlast = 1\n": (("last",), 2),
+        f"x = [{'{' * n}\n": (("x",), 1),
+        f"{'k' * n}\nlast = 1\n": (("last",), 2),
+        f"[{'t' * n}]\nlast = 1\n": (("t" * n, "last"), 2),
+    }
+    for text, (path, line) in cases.items():
+        assert line_index(text)[path] == line
+
+
+def test_a_long_description_checks_at_once_and_a_long_value_is_cut_in_the_message(tmp_path):
+    from pinlib.cli import main
+
+    design = tmp_path / "d.toml"
+    design.write_text(textwrap.dedent("""\
+        format = "pinlib.design/1"
+        title = "long"
+        description = "{long}"
+
+        [[bus]]
+        id = "b"
+        protocol = "i2c"
+        supply = "3.3 V"
+        wrong_key = "{long}"
+        trace = {{ length = "5 cm", capacitance = "0.8 pF/cm" }}
+        devices = [
+          {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
+          {{ ref = "U2", part = "eeprom-i2c" }},
+        ]
+        """).format(long="d" * 2_000_000), encoding="utf-8")
+    from pinlib.model.design import load_design
+
+    try:
+        load_design(design)
+    except InputError as err:
+        assert (err.file, err.line, err.field) == (str(design), 9, "bus[0].wrong_key")
+        assert len(err.message) < 400 and "2,000,000 characters" in err.message
+    else:
+        raise AssertionError("the unknown key was accepted")
+    assert main(["check", str(design)]) == 2
+
+
+def test_line_of_falls_back_to_the_enclosing_key():
+    index = line_index('a = { b = 1 }\n')
+    assert line_of(index, ("a", "b", "c")) == 1
+
+
+def _refused(path, **kw):
+    from pinlib.core.tomlfile import load
+
+    try:
+        load(path, **kw)
+    except InputError as err:
+        return err
+    raise AssertionError(f"{path} was read")
+
+
+def test_deep_nesting_is_refused_with_file_and_line(tmp_path):
+    # 600 levels once raised RecursionError inside the TOML parser
+    deep = tmp_path / "deep.toml"
+    deep.write_text('title = "x"\n\nx = ' + "[" * 600 + "]" * 600 + "\n", encoding="utf-8")
+    err = _refused(deep)
+    assert (err.file, err.line) == (str(deep), 3) and "nested deeper than 64" in err.message
+    # deep enough for pinlib's own code, not for the parser: refused the same way
+    deep.write_text('title = "x"\nx = ' + "[" * 100 + "]" * 100 + "\n", encoding="utf-8")
+    err = _refused(deep)
+    assert err.line == 2 and err.field.startswith("x[0][0]")
+    # tables nested by a dotted header: the line of the header
+    deep.write_text('title = "x"\n[' + ".".join(["t"] * 100) + "]\nv = 1\n", encoding="utf-8")
+    assert _refused(deep).line == 2
+
+
+def test_the_cli_reports_deep_nesting_as_exit_2(tmp_path, capsys):
+    from pinlib.cli import main
+
+    deep = tmp_path / "deep.toml"
+    deep.write_text("x = " + "{ a = " * 600 + "1" + " }" * 600 + "\n", encoding="utf-8")
+    assert main(["check", str(deep)]) == 2
+    err = capsys.readouterr().err
+    assert f"{deep}:1" in err and "Traceback" not in err
+
+
+def test_an_encoding_error_names_the_line_and_column(tmp_path):
+    bad = tmp_path / "bad.toml"
+    bad.write_bytes(b'title = "ok"\nx = 1\ny = "ab\xff"\n')
+    err = _refused(bad)
+    assert err.line == 3 and "byte 0xff at column 8" in err.message
+
+
+def test_windows_line_ends_read_as_before(tmp_path):
+    from pinlib.core.tomlfile import load
+
+    f = tmp_path / "crlf.toml"
+    f.write_bytes(b'a = 1\r\nb = """x\r\ny"""\r\n')
+    data, text = load(f)
+    assert data == {"a": 1, "b": "x\ny"} and "\r" not in text
+
+
+def test_only_regular_files_under_the_limit_are_read(tmp_path):
+    import os
+
+    big = tmp_path / "big.toml"
+    big.write_text(f'x = "{"a" * 2000}"\n', encoding="utf-8")
+    err = _refused(big, max_bytes=1000)
+    assert "2,007 bytes, more than the 1,000 read" in err.message
+    link = tmp_path / "zero.toml"
+    link.symlink_to("/dev/zero")
+    assert "not a regular file" in _refused(link).message  # once grew to gigabytes
+    fifo = tmp_path / "x.toml"
+    os.mkfifo(fifo)
+    assert "not a regular file" in _refused(fifo).message  # once blocked forever
+
+
+def test_a_write_through_a_link_replaces_the_file_it_leads_to(tmp_path):
+    import os
+
+    from pinlib.core.tomlfile import atomic_write, file_lock
+
+    real = tmp_path / "shared" / "part.toml"
+    real.parent.mkdir()
+    real.write_text("x = 1\n", encoding="utf-8")
+    os.chmod(real, 0o640)
+    link = tmp_path / "team" / "part.toml"
+    link.parent.mkdir()
+    link.symlink_to(os.path.relpath(real, link.parent))
+    with file_lock(link):
+        atomic_write(link, "x = 2\n")  # once replaced the link by a regular file
+    assert link.is_symlink() and real.read_text(encoding="utf-8") == "x = 2\n"
+    assert os.stat(real).st_mode & 0o777 == 0o640
+    assert not list(link.parent.glob(".*")) and not list(real.parent.glob(".*"))
+
+
+def test_the_lock_file_is_removed_and_writers_still_take_turns(tmp_path):
+    import threading
+
+    from pinlib.core.tomlfile import atomic_write, file_lock
+
+    counter = tmp_path / "count.toml"
+    atomic_write(counter, "n = 0\n")
+
+    def add(times):
+        for _ in range(times):
+            with file_lock(counter):
+                n = tomllib.loads(counter.read_text(encoding="utf-8"))["n"]
+                atomic_write(counter, f"n = {n + 1}\n")
+
+    workers = [threading.Thread(target=add, args=(40,)) for _ in range(4)]
+    for w in workers:
+        w.start()
+    for w in workers:
+        w.join()
+    # no increment lost although each writer removes the lock file it held
+    assert tomllib.loads(counter.read_text(encoding="utf-8"))["n"] == 160
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["count.toml"]
+
+
+def test_stale_temporaries_of_stopped_writers_are_removed_by_the_next_write(tmp_path):
+    import os
+    import time
+
+    from pinlib.core import tomlfile
+
+    old = time.time() - tomlfile.STALE_TEMPORARY_SECONDS - 60
+    stale = tmp_path / ".design.toml.k3j_x9a2.tmp"  # a writer killed before os.replace
+    fresh = tmp_path / ".other.toml.ab12cd34.tmp"  # a writer at work now
+    foreign = tmp_path / ".notes.abcdefgh.tmp"  # not pinlib's naming
+    for f in (stale, fresh, foreign):
+        f.write_text("half", encoding="utf-8")
+    for f in (stale, foreign):
+        os.utime(f, (old, old))
+    tomlfile.atomic_write(tmp_path / "design.toml", "x = 1\n")
+    assert not stale.exists() and fresh.exists() and foreign.exists()
