@@ -480,30 +480,19 @@ def _damaged_snapshot(folder: Path) -> Path:
     return design_path
 
 
+#: Inputs that hung or raised before issue 14's hardening (its item numbers): each must
+#: now give a result or an error naming one of the files it was given.
 KNOWN = [
-    pytest.param(_long_string, id="14.1-long-string",
-                 marks=pytest.mark.xfail(strict=False, reason="issue 14 item 1: line lookup "
-                                         "quadratic in a long string (input hardening)")),
-    pytest.param(_deep_nesting, id="14.2-deep-nesting",
-                 marks=pytest.mark.xfail(strict=False, reason="issue 14 item 2: RecursionError "
-                                         "in the TOML parser (input hardening)")),
-    pytest.param(_long_extends, id="14.3-extends-1000",
-                 marks=pytest.mark.xfail(strict=False, reason="issue 14 item 3: RecursionError "
-                                         "in a 1,000-deep extends chain (input hardening)")),
-    pytest.param(_supply_min_zero, id="14.4-supply-min-0",
-                 marks=pytest.mark.xfail(strict=False, reason="issue 14 item 4: "
-                                         "ZeroDivisionError in the open-drain engine "
-                                         "(input hardening; this part already gives a "
-                                         "result here)")),
-    pytest.param(_damaged_snapshot, id="14.5-damaged-snapshot",
-                 marks=pytest.mark.xfail(strict=False, reason="issue 14 item 5: a damaged "
-                                         "snapshot raises inside the change list "
-                                         "(input hardening)")),
+    pytest.param(_long_string, id="14.1-long-string"),
+    pytest.param(_deep_nesting, id="14.2-deep-nesting"),
+    pytest.param(_long_extends, id="14.3-extends-1000"),
+    pytest.param(_supply_min_zero, id="14.4-supply-min-0"),
+    pytest.param(_damaged_snapshot, id="14.5-damaged-snapshot"),
 ]
 
 
 @pytest.mark.parametrize("make", KNOWN)
-def test_known_case_of_another_item(tmp_path_factory, make):
+def test_a_case_that_once_hung_or_raised(tmp_path_factory, make):
     from pinlib.studies.compare import compare_with_snapshot
 
     folder, _, part_path = _folder(tmp_path_factory)
@@ -515,4 +504,7 @@ def test_known_case_of_another_item(tmp_path_factory, make):
         compare_with_snapshot(design, result)
         return result
 
-    _contract(run, (design_path, part_path), limit=3.0)
+    # every file of the board's folder was given: the design, its parts (an extends
+    # chain's links included) and its snapshot
+    given = tuple(f for f in folder.rglob("*") if f.is_file())
+    _contract(run, given + (design_path, part_path), limit=3.0)

@@ -458,6 +458,13 @@ def _(env):
                                                      'prat = "eeprom-i2c"')), env).message
 
 
+@case("MORE_FIELDS", M.MORE_FIELDS.format(n=9))
+def _(env):  # a bus table has 19 fields: ten are listed, the closest named apart
+    return _fails(lambda e: e.design(I2C_BUS.replace('supply = "3.3 V"',
+                                                     'supply = "3.3 V"\nsuply = "3 V"')),
+                  env).message
+
+
 @case("FOLDER_NAMED_BY", M.FOLDER_NAMED_BY.format(source="PINLIB_LIBRARY"))
 def _(env):
     env.monkeypatch.setenv("PINLIB_LIBRARY", str(env.tmp / "gone"))

@@ -81,6 +81,7 @@ EXTENDS_CYCLE = "an extends cycle"
 EXTENDS_UNKNOWN = "extends a part that is not in the library"
 # the expected text of UNKNOWN_FIELD (pinlib/library/fields.py)
 EXPECTED_FIELD_OF = "a field of the {format} format here: {fields}"
+MORE_FIELDS = " and {n} more"
 PART_DOES_NOT_VALIDATE = "part '{part}' does not load: {problem}"
 # hints of PART_DOES_NOT_VALIDATE and UNKNOWN_PART
 NAMED_AT = "the part is named at {where}"

@@ -170,8 +170,14 @@ def unknown_field_help(root: type[BaseModel], loc, format_name: str) -> tuple[st
         return M.EXPECTED_FIELD_OF.format(format=format_name, fields="see its documentation"), None
     names = list(model.model_fields)
     key = str(loc[-1])
-    return (M.EXPECTED_FIELD_OF.format(format=format_name, fields=", ".join(names)),
-            _close(key, names))
+    shown = ", ".join(names[:_FIELDS_SHOWN])
+    if len(names) > _FIELDS_SHOWN:  # a message stays readable: the rest in the docs
+        shown += M.MORE_FIELDS.format(n=len(names) - _FIELDS_SHOWN, format=format_name)
+    return (M.EXPECTED_FIELD_OF.format(format=format_name, fields=shown), _close(key, names))
+
+
+#: How many field names an unknown-key message lists (the closest is named apart).
+_FIELDS_SHOWN = 10
 
 
 def _close(word: str, choices) -> str | None:
