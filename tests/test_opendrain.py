@@ -777,3 +777,17 @@ def test_noise_margin_figures_are_their_checks_values(tmp_path):
     high = [c for c in res.checks if c.id == "noise-margin-high"]
     assert fig(res, "noise_margin_high") == pytest.approx(min(c.value for c in high),
                                                            rel=1e-12)
+
+
+def test_device_speed_reads_like_spi_f_max(tmp_path):
+    # test data, invented: t-target rates f_max 1 MHz; a Fast-mode Plus bus at that clock
+    res = bus_result(tmp_path, one_bus(mode="fast-plus", pullup="1 kΩ", more='clock = "1 MHz"'))
+    chk = [c for c in res.checks if c.id == "device-speed"][0]
+    # value = the bus's clock, limit = the device's rating (as SPI f-max); at it: pass
+    assert chk.value == 1e6 and chk.limit == 1e6 and chk.margin == 0
+    assert chk.status == "pass" and chk.subject == "U2"
+    over = bus_result(tmp_path, one_bus(mode="fast-plus", pullup="1 kΩ",
+                                        more='clock = "1.01 MHz"'))
+    chk = [c for c in over.checks if c.id == "device-speed"][0]
+    # derived from the margin rule: (limit − value) / limit = (1 − 1.01) / 1
+    assert chk.status == "fail" and chk.margin == pytest.approx(-0.01, rel=1e-9)

@@ -312,7 +312,7 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
             if not d.is_controller and not d.is_bridge and ctx.parts.timing(d).f_max is not None]
     if slow:
         f_dev = _reduce(np.min, slow)
-        out.pick("device-speed", None, [(min_margin(f_dev, clock), f_dev, clock)], 0.0, "Hz")
+        out.pick("device-speed", None, [(max_margin(clock, f_dev), clock, f_dev)], 0.0, "Hz")
     # -- SDA data setup
     tr_sda = figs["sda"]["rise_time"]
     def drives_sda(d, seg):
