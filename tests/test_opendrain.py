@@ -13,6 +13,7 @@ from spice import have_ngspice, run_deck
 
 from pinlib.engines import opendrain
 from pinlib.engines.dispatch import check_design
+from pinlib.engines.opendrain.inputs import value_source
 from pinlib.model.design import load_design
 from pinlib.physics.rc import RISE_10_90, RISE_30_70
 
@@ -791,3 +792,21 @@ def test_device_speed_reads_like_spi_f_max(tmp_path):
     chk = [c for c in over.checks if c.id == "device-speed"][0]
     # derived from the margin rule: (limit − value) / limit = (1 − 1.01) / 1
     assert chk.status == "fail" and chk.margin == pytest.approx(-0.01, rel=1e-9)
+
+
+def test_sources_name_the_file_a_value_came_from(tmp_path):
+    # test data, invented: t-target-6ma extends t-target; it sets its own sink (6 mA at
+    # 0.6 V) and inherits f_max, the levels and the supply range from t-target
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+               '{ ref = "U2", part = "t-target-6ma" }']
+    res = bus_result(tmp_path, one_bus(mode="fast-plus", pullup="2.2 kΩ", devices=devices,
+                                       more='clock = "1 MHz"'))
+    speed = [c for c in res.checks if c.id == "device-speed"][0]
+    assert speed.source == ("t-target-6ma timing.f_max from t-target (t-target.toml), "
+                            "estimate: test data, invented")
+    u2 = design(tmp_path, one_bus(devices=devices)).buses[0].devices[1]
+    own = value_source(u2, "pins.sda.i_ol", u2.part.pins["sda"].i_ol)
+    assert own == "t-target-6ma pins.sda.i_ol (t-target-6ma.toml), estimate: test data, invented"
+    inherited = value_source(u2, "pins.sda.v_il", u2.part.pins["sda"].v_il)
+    assert inherited == ("t-target-6ma pins.sda.v_il from t-target (t-target.toml), "
+                         "estimate: test data, invented")

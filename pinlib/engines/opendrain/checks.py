@@ -27,6 +27,7 @@ from pinlib.engines.opendrain.inputs import (
     _default,
     _f,
     _taps,
+    value_source,
 )
 from pinlib.engines.opendrain.rules import (
     _COMMON,
@@ -433,9 +434,8 @@ def _timing_checks(ctx: Context, seg_in: SegmentInputs, grp: Group, per_line: di
             if not d.is_controller and not d.is_bridge and d.part.timing.f_max is not None]
     if slow:
         f_dev, d = min(slow, key=lambda x: x[0])
-        fm = d.part.timing.f_max
-        why = fm.source or d.part.provenance.source or "part file"
-        grp.add(check_max("device-speed", clock, f_dev, "Hz", f"{d.part_id} timing.f_max ({why})",
+        src = value_source(d, "timing.f_max", d.part.timing.f_max)
+        grp.add(check_max("device-speed", clock, f_dev, "Hz", src,
                           f"clock {_f(clock, 'Hz')} against the slowest device {d.ref}'s "
                           f"rated {_f(f_dev, 'Hz')}", subject=d.ref,
                           warn_margin=0.0))  # a rating: at it is inside
@@ -512,8 +512,10 @@ def _domain_checks(ctx: Context, seg_in: SegmentInputs, grp: Group, taps: list) 
     if rows:
         rows.sort(key=lambda x: x[0])
         _, low_side, lo, hi, sup, t = rows[0]
-        why = sup.min.source or t.dev.part.provenance.source or "part file"
-        src = f"{t.dev.part_id} supply ({why})"
+        side = t.dev.side
+        where = "supply" if sup is t.dev.part.supply else f"sides.{side}.supply"
+        src = (value_source(t.dev, f"{where}.min", sup.min) if low_side
+               else value_source(t.dev, f"{where}.max", sup.max))
         rng = f"{_f(float(sup.min.value), 'V')} to {_f(float(sup.max.value), 'V')}"
         if low_side:
             chk = check_min("supply-range", lo, float(sup.min.value), "V", src,

@@ -11,6 +11,7 @@ those of :mod:`.rules`, which the array checks of :mod:`.batch` apply too.
 from __future__ import annotations
 
 import math
+import os
 import warnings
 from dataclasses import dataclass, field
 
@@ -67,13 +68,30 @@ class _Tap:
         return f"{self.dev.ref}{side}"
 
     def source(self, field_name: str) -> str:
-        value = getattr(self.pin, field_name)
-        where = f"{self.dev.part_id} pins.{self.pin_name}.{field_name}"
-        bits = [b for b in (getattr(value, "basis", None), getattr(value, "source", None)) if b]
-        if not bits:
-            prov = self.dev.part.provenance
-            bits = [b for b in (prov.basis, prov.source) if b]
-        return f"{where} ({': '.join(bits)})" if bits else where
+        return value_source(self.dev, f"pins.{self.pin_name}.{field_name}",
+                            getattr(self.pin, field_name))
+
+
+def value_source(dev: Device, path: str, value) -> str:
+    """Where a part's value comes from, for a check's ``source``: the placed part and the
+    field, then the part and file that set the value (the class it extends, when
+    inherited) with that value's basis and source (:meth:`Sourced.provenance_text`):
+    ``'eeprom-i2c pins.sda.v_il from i2c-peripheral (i2c-peripheral.toml), generic: ...'``,
+    ``'mcu-3v3 pins.scl.i_ol (mcu-3v3.toml), datasheet: rev B'``.  A value without a
+    recorded origin is taken as the placed part's own."""
+    where = f"{dev.part_id} {path}"
+    if isinstance(value, Sourced) and value.origin:
+        if value.origin != dev.part_id:
+            return f"{where} from {value.provenance_text()}"
+        if value.origin_file:  # the placed part's own file: named once, by its file
+            where += f" ({os.path.basename(value.origin_file)})"
+        bits = ": ".join(b for b in (value.basis, value.source) if b)
+        return f"{where}, {bits}" if bits else where
+    bits = [b for b in (getattr(value, "basis", None), getattr(value, "source", None)) if b]
+    if not bits:
+        prov = dev.part.provenance
+        bits = [b for b in (prov.basis, prov.source) if b]
+    return f"{where} ({': '.join(bits)})" if bits else where
 
 
 @dataclass
