@@ -810,3 +810,32 @@ def test_sources_name_the_file_a_value_came_from(tmp_path):
     inherited = value_source(u2, "pins.sda.v_il", u2.part.pins["sda"].v_il)
     assert inherited == ("t-target-6ma pins.sda.v_il from t-target (t-target.toml), "
                          "estimate: test data, invented")
+
+
+def test_window_without_rp_min_has_no_limit_but_a_reason(tmp_path):
+    from pinlib.present.report import format_value
+    from pinlib.studies import whatif
+
+    # reproducer: a 470 Ω pull-up at 3.3 V on the high side draws about 6 mA through the
+    # translator (derived: (3.3 V − 0.4 V) / 470 Ω), more than the low side's sinks are
+    # rated for (test parts, invented: 2 mA on SDA, 3 mA on SCL)
+    body = translator_bus(low="1.8 V").replace('pullup = "2.2 kΩ"', 'pullup = "470 Ω"', 1)
+    res = bus_result(tmp_path, body)
+    low = res.segments[1]
+    assert low.figures["rp_min"].to_json()["value"] is None
+    win = [c for c in low.checks if c.id == "pullup-window"]
+    assert win and all(c.status == "fail" for c in win)
+    for c in win:
+        # no infinity as a number: no limit, no margin, a reason; the value is the pull-up
+        assert c.limit is None and c.margin is None and "no Rp(min) exists" in c.reason
+        assert c.value == pytest.approx(2.2e3, rel=1e-12)  # 2.2 kΩ at 0 % tolerance
+        j = c.to_json()
+        assert j["limit"] is None and j["margin"] is None and j["reason"] == c.reason
+        assert format_value(c.limit, c.unit) == "—"
+    text = json.dumps(res.to_json(), ensure_ascii=False)
+    assert "Infinity" not in text and "NaN" not in text
+    # the array path fails the same checks
+    mc = whatif.monte_carlo(design(tmp_path, body), 4, seed=1)
+    mine = [c for c in mc.checks if c.segment == "low" and c.id == "pullup-window"]
+    assert len(mine) == len(win)
+    assert all(c.fails == 4 for c in mine)

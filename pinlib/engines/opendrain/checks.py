@@ -99,7 +99,15 @@ def _window_check(ctx: Context, seg_in: SegmentInputs, ln: LineInputs) -> Check:
     lo_text = _f(ln.rp_min, 'Ω') if np.isfinite(ln.rp_min) else "none (no value: see below)"
     hi_text = _f(ln.rp_max, 'Ω') if np.isfinite(ln.rp_max) else "no upper limit"
     window = f"[{lo_text}, {hi_text}]"
-    if m_lo <= m_hi:
+    if not np.isfinite(ln.rp_min):
+        # the far side's pull-ups alone exceed a sink's rating: no Rp(min) exists
+        reason = ("no Rp(min) exists: the pull-ups across the translator alone draw more "
+                  "than the weakest sink's rating, so no pull-up on this segment is large "
+                  "enough")
+        chk = Check("pullup-window", "fail", r_eff * (1 - tol), None, "Ω", None, src,
+                    f"{up} pull-up {shown} at −{tol:.0%}: {_f(r_eff * (1 - tol), 'Ω')}; "
+                    f"{reason}", subject=up, details=details, reason=reason)
+    elif m_lo <= m_hi:
         chk = check_min("pullup-window", r_eff * (1 - tol), ln.rp_min, "Ω", src,
                         f"{up} pull-up {shown} at −{tol:.0%}: {_f(r_eff * (1 - tol), 'Ω')} "
                         f"against the window {window}", subject=up, details=details, **ctx.kw())
