@@ -223,7 +223,7 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     out.pick("pullup-window", up, [(
         np.where(low, min_margin(rp_lo, ln.rp_min), max_margin(rp_hi, ln.rp_max)),
         np.where(low, rp_lo, rp_hi), np.where(low, ln.rp_min, ln.rp_max))], warn, "Ω")
-    tr = pu.rise_time(rp_hi, ln.cb, ln.factor)
+    tr = pu.rise_time(rp_hi, ln.cb, ln.rise_factor)
     f["rise_time"] = tr
     out.pick("rise-time", up, [(max_margin(tr, lim.tr_max), tr, lim.tr_max)], warn, "s")
     # -- low levels

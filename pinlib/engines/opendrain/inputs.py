@@ -99,7 +99,7 @@ class _Driver:
     tap: _Tap
     v_ol: np.ndarray        # guaranteed low level at i_ol, per corner [V]
     i_ol: float             # [A]
-    r_on: np.ndarray        # v_ol / i_ol, per corner [Ω]
+    r_sink: np.ndarray      # the sink's effective resistance v_ol / i_ol, per corner [Ω]
     r_series: float         # [Ω]
     source_i: str
     offset: float | None = None   # static low-offset level of a repeater side [V]
@@ -128,7 +128,7 @@ class LineInputs:
     leakage : float
         Sum of the pins' leakage. [A]
     rp_min, rp_max : float
-        The pull-up window (UM10204 eq. 2 and eq. 1, or the SMBus factor). [Ω]
+        The pull-up window (UM10204 eq. 2 and eq. 1, or the SMBus rise factor). [Ω]
     r_parts : float
         The parts' own pull-ups in parallel, nominal; ``inf`` for none. [Ω]
     rise_factor : float
@@ -285,7 +285,7 @@ def _leakage(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits, up: 
             leak += value
         if t.pin.leakage is None and value is not None:
             _default(seg_in, f"no leakage stated: taken at the specification's "
-                             f"{_f(lim.i_leak, 'A')} ({lim.source_pin})", f"{t.label} {up}")
+                             f"{_f(lim.leakage, 'A')} ({lim.source_pin})", f"{t.label} {up}")
     return leak
 
 
@@ -378,10 +378,10 @@ def _line_inputs(signal: str, seg_in: SegmentInputs, lim: OpenDrainLimits,
     part_pullups = _part_pullups(taps, seg_in, up)
     r_parts = float(pu.parallel(*[p["value"] for p in part_pullups])) if part_pullups else math.inf
     rp_min, weakest = _weakest_sink(drivers, float(v[1]))
-    factor = float(lim.rise_factor(float(v[0])))
-    rp_max = rp_max_of(lim, factor, cb)
+    rise_factor = float(lim.rise_factor(float(v[0])))
+    rp_max = rp_max_of(lim, rise_factor, cb)
     return LineInputs(signal, taps, cb, cb_parts, leak, drivers, receivers, part_pullups,
-                      r_parts, rp_min, weakest, rp_max, factor,
+                      r_parts, rp_min, weakest, rp_max, rise_factor,
                       weakest.tap.label if weakest else "")
 
 
