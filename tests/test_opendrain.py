@@ -839,3 +839,22 @@ def test_window_without_rp_min_has_no_limit_but_a_reason(tmp_path):
     mine = [c for c in mc.checks if c.segment == "low" and c.id == "pullup-window"]
     assert len(mine) == len(win)
     assert all(c.fails == 4 for c in mine)
+
+
+def test_level_figures_are_the_worst_extreme_and_checks_name_theirs(tmp_path):
+    # docs/formats/result.md: v_ol is the highest low level over the rail's extremes,
+    # v_oh the lowest high level; each check takes the extreme of its smallest margin
+    res = bus_result(tmp_path, one_bus(vtol="10 %", pullup="2.2 kΩ"))
+    vol = [c for c in res.checks if c.id == "v-ol"]
+    voh = [c for c in res.checks if c.id == "v-oh"]
+    assert vol and voh
+    for c in vol:
+        assert c.value <= fig(res, "v_ol") + 1e-15
+        assert "rail at its minimum" in c.message or "rail at its maximum" in c.message
+    for c in voh:
+        assert c.value >= fig(res, "v_oh") - 1e-15
+        assert "rail at its minimum" in c.message or "rail at its maximum" in c.message
+    # derived from low_level: (3.3 V · 1.1) · r_sink / (Rp + r_sink), r_sink = 0.4 V / 3 mA,
+    # at the rail's maximum (the highest low level)
+    r_sink = 0.4 / 3e-3
+    assert fig(res, "v_ol") == pytest.approx(3.63 * r_sink / (2200 + r_sink), rel=1e-9)
