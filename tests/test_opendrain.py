@@ -13,6 +13,7 @@ from spice import have_ngspice, run_deck
 
 from pinlib.engines import opendrain
 from pinlib.engines.dispatch import check_design
+from pinlib.engines.opendrain.inputs import value_source
 from pinlib.model.design import load_design
 from pinlib.physics.rc import RISE_10_90, RISE_30_70
 
@@ -777,3 +778,83 @@ def test_noise_margin_figures_are_their_checks_values(tmp_path):
     high = [c for c in res.checks if c.id == "noise-margin-high"]
     assert fig(res, "noise_margin_high") == pytest.approx(min(c.value for c in high),
                                                            rel=1e-12)
+
+
+def test_device_speed_reads_like_spi_f_max(tmp_path):
+    # test data, invented: t-target rates f_max 1 MHz; a Fast-mode Plus bus at that clock
+    res = bus_result(tmp_path, one_bus(mode="fast-plus", pullup="1 kΩ", more='clock = "1 MHz"'))
+    chk = [c for c in res.checks if c.id == "device-speed"][0]
+    # value = the bus's clock, limit = the device's rating (as SPI f-max); at it: pass
+    assert chk.value == 1e6 and chk.limit == 1e6 and chk.margin == 0
+    assert chk.status == "pass" and chk.subject == "U2"
+    over = bus_result(tmp_path, one_bus(mode="fast-plus", pullup="1 kΩ",
+                                        more='clock = "1.01 MHz"'))
+    chk = [c for c in over.checks if c.id == "device-speed"][0]
+    # derived from the margin rule: (limit − value) / limit = (1 − 1.01) / 1
+    assert chk.status == "fail" and chk.margin == pytest.approx(-0.01, rel=1e-9)
+
+
+def test_sources_name_the_file_a_value_came_from(tmp_path):
+    # test data, invented: t-target-6ma extends t-target; it sets its own sink (6 mA at
+    # 0.6 V) and inherits f_max, the levels and the supply range from t-target
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+               '{ ref = "U2", part = "t-target-6ma" }']
+    res = bus_result(tmp_path, one_bus(mode="fast-plus", pullup="2.2 kΩ", devices=devices,
+                                       more='clock = "1 MHz"'))
+    speed = [c for c in res.checks if c.id == "device-speed"][0]
+    assert speed.source == ("t-target-6ma timing.f_max from t-target (t-target.toml), "
+                            "estimate: test data, invented")
+    u2 = design(tmp_path, one_bus(devices=devices)).buses[0].devices[1]
+    own = value_source(u2, "pins.sda.i_ol", u2.part.pins["sda"].i_ol)
+    assert own == "t-target-6ma pins.sda.i_ol (t-target-6ma.toml), estimate: test data, invented"
+    inherited = value_source(u2, "pins.sda.v_il", u2.part.pins["sda"].v_il)
+    assert inherited == ("t-target-6ma pins.sda.v_il from t-target (t-target.toml), "
+                         "estimate: test data, invented")
+
+
+def test_window_without_rp_min_has_no_limit_but_a_reason(tmp_path):
+    from pinlib.present.report import format_value
+    from pinlib.studies import whatif
+
+    # reproducer: a 470 Ω pull-up at 3.3 V on the high side draws about 6 mA through the
+    # translator (derived: (3.3 V − 0.4 V) / 470 Ω), more than the low side's sinks are
+    # rated for (test parts, invented: 2 mA on SDA, 3 mA on SCL)
+    body = translator_bus(low="1.8 V").replace('pullup = "2.2 kΩ"', 'pullup = "470 Ω"', 1)
+    res = bus_result(tmp_path, body)
+    low = res.segments[1]
+    assert low.figures["rp_min"].to_json()["value"] is None
+    win = [c for c in low.checks if c.id == "pullup-window"]
+    assert win and all(c.status == "fail" for c in win)
+    for c in win:
+        # no infinity as a number: no limit, no margin, a reason; the value is the pull-up
+        assert c.limit is None and c.margin is None and "no Rp(min) exists" in c.reason
+        assert c.value == pytest.approx(2.2e3, rel=1e-12)  # 2.2 kΩ at 0 % tolerance
+        j = c.to_json()
+        assert j["limit"] is None and j["margin"] is None and j["reason"] == c.reason
+        assert format_value(c.limit, c.unit) == "—"
+    text = json.dumps(res.to_json(), ensure_ascii=False)
+    assert "Infinity" not in text and "NaN" not in text
+    # the array path fails the same checks
+    mc = whatif.monte_carlo(design(tmp_path, body), 4, seed=1)
+    mine = [c for c in mc.checks if c.segment == "low" and c.id == "pullup-window"]
+    assert len(mine) == len(win)
+    assert all(c.fails == 4 for c in mine)
+
+
+def test_level_figures_are_the_worst_extreme_and_checks_name_theirs(tmp_path):
+    # docs/formats/result.md: v_ol is the highest low level over the rail's extremes,
+    # v_oh the lowest high level; each check takes the extreme of its smallest margin
+    res = bus_result(tmp_path, one_bus(vtol="10 %", pullup="2.2 kΩ"))
+    vol = [c for c in res.checks if c.id == "v-ol"]
+    voh = [c for c in res.checks if c.id == "v-oh"]
+    assert vol and voh
+    for c in vol:
+        assert c.value <= fig(res, "v_ol") + 1e-15
+        assert "rail at its minimum" in c.message or "rail at its maximum" in c.message
+    for c in voh:
+        assert c.value >= fig(res, "v_oh") - 1e-15
+        assert "rail at its minimum" in c.message or "rail at its maximum" in c.message
+    # derived from low_level: (3.3 V · 1.1) · r_sink / (Rp + r_sink), r_sink = 0.4 V / 3 mA,
+    # at the rail's maximum (the highest low level)
+    r_sink = 0.4 / 3e-3
+    assert fig(res, "v_ol") == pytest.approx(3.63 * r_sink / (2200 + r_sink), rel=1e-9)

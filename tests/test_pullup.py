@@ -30,15 +30,15 @@ def test_parallel():
 
 def test_low_level_divider():
     # derived from the divider: 3.3 V, Rp 2.2 kΩ, Ron 0.4 V / 3 mA = 133.3 Ω, Rs 100 Ω
-    r_on = pu.sink_resistance(0.4, 3e-3)
-    assert r_on == pytest.approx(133.333, abs=1e-3)
-    v = pu.low_level(3.3, 2200.0, r_on, 100.0)
+    r_sink = pu.sink_resistance(0.4, 3e-3)
+    assert r_sink == pytest.approx(133.333, abs=1e-3)
+    v = pu.low_level(3.3, 2200.0, r_sink, 100.0)
     assert v == pytest.approx(3.3 * (400 / 3 + 100) / (400 / 3 + 100 + 2200), rel=1e-12)
     # at Rp(min) (UM10204 eq. 2) the driver sits exactly at its datasheet point
     rp_min = (3.3 - 0.4) / 3e-3
-    assert pu.low_level(3.3, rp_min, r_on) == pytest.approx(0.4, rel=1e-12)
-    assert pu.sink_current(3.3, rp_min, r_on) == pytest.approx(3e-3, rel=1e-12)
-    assert pu.low_level(3.3, np.inf, r_on) == 0.0
+    assert pu.low_level(3.3, rp_min, r_sink) == pytest.approx(0.4, rel=1e-12)
+    assert pu.sink_current(3.3, rp_min, r_sink) == pytest.approx(3e-3, rel=1e-12)
+    assert pu.low_level(3.3, np.inf, r_sink) == 0.0
 
 
 def test_high_level_and_power():
@@ -103,10 +103,10 @@ def test_budget_arrays_match_scalars():
     rp = np.array([1e3, 2.2e3, 4.7e3])
     cb = np.array([50e-12, 150e-12, 400e-12])
     vdd = np.array([1.8, 3.3, 5.0])
-    b = pu.budget(rp[:, None], cb[None, :], vdd[:, None], i_leak=20e-6, r_series=50.0)
+    b = pu.budget(rp[:, None], cb[None, :], vdd[:, None], leakage=20e-6, r_series=50.0)
     for i in range(3):
         for j in range(3):
-            s = pu.budget(rp[i], cb[j], vdd[i], i_leak=20e-6, r_series=50.0)
+            s = pu.budget(rp[i], cb[j], vdd[i], leakage=20e-6, r_series=50.0)
             for name in pu.Budget._fields:
                 assert getattr(b, name)[i, j] == pytest.approx(getattr(s, name), rel=1e-12)
 

@@ -56,7 +56,7 @@ UM10204_REV6_TABLE9 = {
     "t_of_min_ns_at_5v5": (None, 20, 20),  # 20 x (VDD / 5.5 V)
     "t_of_max_ns": (250, 250, 120),
     "t_sp_ns": (None, 50, 50),  # 0-50 ns
-    "i_leak_ua": (10, 10, 10),  # Ii, ±10 µA
+    "leakage_ua": (10, 10, 10),  # Ii, ±10 µA
     "c_i_max_pf": (10, 10, 10),
 }
 
@@ -292,8 +292,8 @@ SMBUS31_TABLE4 = {
     "v_hys_min_mv": (80, 80, 80),
     "v_ol_v": (0.4, 0.4, 0.4),
     "i_ol_ma": (4, 6, 20),
-    "i_leak_bus_ua": (200, 200, 200),
-    "i_leak_pin_ua": (10, 10, 10),
+    "leakage_bus_ua": (200, 200, 200),
+    "leakage_pin_ua": (10, 10, 10),
     "c_bus_max_pf": (None, 400, 400),  # stated for the 400 kHz and 1 MHz classes
     "c_pin_pf": (10, 10, 10),  # recommended
 }
@@ -345,7 +345,7 @@ def test_smbus_low_power_values():
     assert (lp.vdd_min, lp.vdd_max) == (1.62, 5.5)
     assert (lp.v_il_max, lp.v_ih_min) == (0.8, 1.35)
     assert lp.v_ol == 0.4 and lp.i_ol == pytest.approx(350 * UA, rel=1e-12)
-    assert lp.i_leak_pin == pytest.approx(5 * UA, rel=1e-12)
+    assert lp.leakage_pin == pytest.approx(5 * UA, rel=1e-12)
     assert lp.i_pullup_min == pytest.approx(100 * UA, rel=1e-12)
     assert lp.i_pullup_max == pytest.approx(350 * UA, rel=1e-12)
     assert lp.r_series_max == pytest.approx(1.1e3, rel=1e-12)

@@ -56,7 +56,7 @@ class OpenDrainLimits:
         Clock low and high minima, data setup minimum, data valid maximum. [s]
     v_nl_rel, v_nh_rel : float or None
         Noise-margin minima as fractions of VDD; None for SMBus.
-    c_pin, i_leak : float
+    c_pin, leakage : float
         What a pin without its own value is taken at: capacitance [F], leakage [A].
     """
 
@@ -75,7 +75,7 @@ class OpenDrainLimits:
     v_nl_rel: float | None
     v_nh_rel: float | None
     c_pin: float
-    i_leak: float
+    leakage: float
     source_edges: str
     source_cb: str
     source_timing: str
@@ -193,7 +193,7 @@ def limits_for(protocol: str, mode: str) -> OpenDrainLimits:
             protocol="i2c", mode=m.name, label=_I2C_LABEL[m.name], rise_definition="30-70",
             f_max=m.f_scl_max, tr_max=m.tr_max, tf_max=m.tf_max, cb_max=m.cb_max,
             t_low=m.t_low, t_high=m.t_high, t_su_dat=m.t_su_dat, t_vd_dat=m.t_vd_dat,
-            v_nl_rel=m.v_nl_rel, v_nh_rel=m.v_nh_rel, c_pin=m.c_i_max, i_leak=m.i_leak,
+            v_nl_rel=m.v_nl_rel, v_nh_rel=m.v_nh_rel, c_pin=m.c_i_max, leakage=m.leakage,
             source_edges=f"{m.source_bus} (tr, tf)", source_cb=f"{m.source_bus} (Cb)",
             source_timing=f"{m.source_bus} (tLOW, tHIGH, tSU;DAT)",
             source_vd_dat=f"{m.source_bus} (tVD;DAT)",
@@ -213,7 +213,7 @@ def limits_for(protocol: str, mode: str) -> OpenDrainLimits:
             protocol="smbus", mode=c.name, label=_SMBUS_LABEL[c.name], rise_definition="smbus",
             f_max=c.f_smb_max, tr_max=c.tr_max, tf_max=c.tf_max, cb_max=c.c_bus_max,
             t_low=c.t_low, t_high=c.t_high_min, t_su_dat=c.t_su_dat, t_vd_dat=twin.t_vd_dat,
-            v_nl_rel=None, v_nh_rel=None, c_pin=c.c_pin, i_leak=c.i_leak_pin,
+            v_nl_rel=None, v_nh_rel=None, c_pin=c.c_pin, leakage=c.leakage_pin,
             source_edges=f"{smbus_std.SOURCE_AC} (tR, tF between the SMBus points)",
             source_cb=cb_source,
             source_timing=f"{smbus_std.SOURCE_AC} (tLOW, tHIGH, tSU:DAT)",

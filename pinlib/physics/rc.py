@@ -209,7 +209,7 @@ def smbus_rise_factor(vdd, v_lo=0.65, v_hi=1.50):
     return np.log((vdd - v_lo) / (vdd - v_hi))
 
 
-def rp_max(tr, cb, factor=RISE_30_70):
+def rp_max(tr, cb, rise_factor=RISE_30_70):
     """Largest pull-up resistance that meets a rise-time limit.
 
     Parameters
@@ -218,7 +218,7 @@ def rp_max(tr, cb, factor=RISE_30_70):
         Maximum allowed rise time. [s]
     cb : float or array_like
         Bus capacitance. [F]
-    factor : float or array_like, optional
+    rise_factor : float or array_like, optional
         Rise time in units of RC between the measuring levels; ``RISE_30_70``
         (0.8473, UM10204) by default, ``smbus_rise_factor(vdd)`` for SMBus. [1]
 
@@ -242,8 +242,8 @@ def rp_max(tr, cb, factor=RISE_30_70):
     """
     tr = _non_negative(tr, "tr", "[s]")
     cb = _positive(cb, "cb", "[F]")
-    factor = _positive(factor, "factor", "[1]")
-    return tr / (factor * cb)
+    rise_factor = _positive(rise_factor, "rise_factor", "[1]")
+    return tr / (rise_factor * cb)
 
 
 def rp_min(vdd, v_ol, i_ol):

@@ -53,7 +53,7 @@ _IO_FIELDS = frozenset(
     {
         "v_il_rel", "v_ih_rel", "v_hys_rel", "v_ol", "i_ol", "v_ol_low_vdd_rel",
         "i_ol_low_vdd", "v_ol_06", "i_ol_06", "t_of_min", "t_of_min_scaled", "t_of_max",
-        "t_sp", "i_leak", "c_i_max",
+        "t_sp", "leakage", "c_i_max",
     }
 )  # fmt: skip
 _META_FIELDS = frozenset({"name", "source_io", "source_bus", "from_memory"})
@@ -135,7 +135,7 @@ class I2cMode:
     t_sp : float or None
         Pulse width of spikes the input filter must suppress (the table's
         0–50 ns: this is the upper figure). [s]
-    i_leak : float
+    leakage : float
         Input current of each I/O pin, magnitude (the table's ±10 µA). [A]
     c_i_max : float
         Capacitance of each I/O pin. [F]
@@ -193,7 +193,7 @@ class I2cMode:
     t_of_min_scaled: bool
     t_of_max: float
     t_sp: float | None
-    i_leak: float
+    leakage: float
     c_i_max: float
     source_io: str = SOURCE_IO
     source_bus: str = SOURCE_BUS
@@ -370,7 +370,7 @@ _MODES = (
         t_of_min_scaled=False,
         t_of_max=250e-9,
         t_sp=None,
-        i_leak=10e-6,  # the table's ±10 µA
+        leakage=10e-6,  # the table's ±10 µA
         c_i_max=10e-12,
     ),
     I2cMode(
@@ -408,7 +408,7 @@ _MODES = (
         t_of_min_scaled=True,
         t_of_max=250e-9,
         t_sp=50e-9,
-        i_leak=10e-6,
+        leakage=10e-6,
         c_i_max=10e-12,
     ),
     I2cMode(
@@ -446,7 +446,7 @@ _MODES = (
         t_of_min_scaled=True,
         t_of_max=120e-9,
         t_sp=50e-9,
-        i_leak=10e-6,
+        leakage=10e-6,
         c_i_max=10e-12,
     ),
 )

@@ -50,7 +50,7 @@ EDGE_OFFSET = 0.15
 
 _META_FIELDS = frozenset({"name", "source_ac", "source_dc", "from_memory", "note"})
 _DC_FIELDS = frozenset(
-    {"v_il_max", "v_ih_min", "v_hys_min", "v_ol", "i_ol", "i_leak_bus", "i_leak_pin",
+    {"v_il_max", "v_ih_min", "v_hys_min", "v_ol", "i_ol", "leakage_bus", "leakage_pin",
      "c_bus_max", "c_pin"}
 )  # fmt: skip
 
@@ -94,7 +94,7 @@ class SmbusClass:
     v_ol, i_ol : float
         Maximum low output voltage and the sink current at which it holds
         (4 / 6 / 20 mA by class). [V], [A]
-    i_leak_bus, i_leak_pin : float
+    leakage_bus, leakage_pin : float
         Leakage current magnitude of the whole bus and of one pin. [A]
     c_bus_max : float or None
         Capacitive load per bus segment; ``None`` for the 100 kHz class (see
@@ -141,8 +141,8 @@ class SmbusClass:
     v_hys_min: float
     v_ol: float
     i_ol: float
-    i_leak_bus: float
-    i_leak_pin: float
+    leakage_bus: float
+    leakage_pin: float
     c_bus_max: float | None
     c_pin: float
     source_ac: str = SOURCE_AC
@@ -191,7 +191,7 @@ class SmbusLowPower:
         Input low / high thresholds. [V]
     v_ol, i_ol : float
         Maximum low output voltage at the sink current i_ol. [V], [A]
-    i_leak_pin : float
+    leakage_pin : float
         Leakage current magnitude of one pin (the table's ±5 µA). [A]
     i_pullup_min, i_pullup_max : float
         Range of the pull-up current. [A]
@@ -214,7 +214,7 @@ class SmbusLowPower:
     v_ih_min: float
     v_ol: float
     i_ol: float
-    i_leak_pin: float
+    leakage_pin: float
     i_pullup_min: float
     i_pullup_max: float
     r_series_max: float
@@ -256,8 +256,8 @@ _CLASSES = (
         v_hys_min=80e-3,
         v_ol=0.4,
         i_ol=4e-3,
-        i_leak_bus=200e-6,
-        i_leak_pin=10e-6,
+        leakage_bus=200e-6,
+        leakage_pin=10e-6,
         c_bus_max=None,
         c_pin=10e-12,
         note=_NOTE_100K,
@@ -288,8 +288,8 @@ _CLASSES = (
         v_hys_min=80e-3,
         v_ol=0.4,
         i_ol=6e-3,
-        i_leak_bus=200e-6,
-        i_leak_pin=10e-6,
+        leakage_bus=200e-6,
+        leakage_pin=10e-6,
         c_bus_max=400e-12,
         c_pin=10e-12,
     ),
@@ -319,8 +319,8 @@ _CLASSES = (
         v_hys_min=80e-3,
         v_ol=0.4,
         i_ol=20e-3,
-        i_leak_bus=200e-6,
-        i_leak_pin=10e-6,
+        leakage_bus=200e-6,
+        leakage_pin=10e-6,
         c_bus_max=400e-12,
         c_pin=10e-12,
     ),
@@ -340,7 +340,7 @@ SMBUS_LOW_POWER = SmbusLowPower(
     v_ih_min=1.35,
     v_ol=0.4,
     i_ol=350e-6,
-    i_leak_pin=5e-6,
+    leakage_pin=5e-6,
     i_pullup_min=100e-6,
     i_pullup_max=350e-6,
     r_series_max=1.1e3,

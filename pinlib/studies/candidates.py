@@ -306,7 +306,8 @@ def _summary_of(results: list[BusResult], places) -> tuple:
     best, where, margins = None, None, []
     for r, (_, dev) in zip(results, places, strict=True):
         for seg_id, line, c in r.all_checks():
-            if c.margin is None or not _ranks(c.id, dev):
+            # a margin that does not exist (its check says why) counts as −inf, as in a batch
+            if (c.margin is None and c.reason is None) or not _ranks(c.id, dev):
                 continue
             m = _margin_key(c.margin)
             margins.append(m)

@@ -42,8 +42,8 @@ def low_levels(v, rp_lo, drivers, far, segs, signal: str) -> tuple[list, list]:
             offset_levels.append((vb, (v - vb) / rp_lo, d))
             continue
         if not far:
-            vb = np.asarray(pu.low_level(v, rp_lo, d.r_on, d.r_series), dtype=float)
-            i = np.asarray(pu.sink_current(v, rp_lo, d.r_on, d.r_series), dtype=float)
+            vb = np.asarray(pu.low_level(v, rp_lo, d.r_sink, d.r_series), dtype=float)
+            i = np.asarray(pu.sink_current(v, rp_lo, d.r_sink, d.r_series), dtype=float)
         else:
             g = 0
             for link, _, rp in far:
@@ -52,11 +52,11 @@ def low_levels(v, rp_lo, drivers, far, segs, signal: str) -> tuple[list, list]:
             for link, vv, rp in far:
                 v_th = v_th + vv / (rp + link.r_on)
             vb, _, i = (np.asarray(x, dtype=float) for x in pu.translator_low_levels(
-                v, rp_lo, v_th / g, 1.0 / g, 0.0, d.r_on + d.r_series))
+                v, rp_lo, v_th / g, 1.0 / g, 0.0, d.r_sink + d.r_series))
         levels.append((vb, i, d, None))
     for d, link, v_other, rp_other in far_drivers(far, segs, signal):
         _, vf, _ = pu.translator_low_levels(v_other, rp_other, v, rp_lo, link.r_on,
-                                            d.r_on + d.r_series)
+                                            d.r_sink + d.r_series)
         levels.append((np.asarray(vf, dtype=float), None, d, link))
     return levels, offset_levels
 

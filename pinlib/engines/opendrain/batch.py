@@ -223,7 +223,7 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     out.pick("pullup-window", up, [(
         np.where(low, min_margin(rp_lo, ln.rp_min), max_margin(rp_hi, ln.rp_max)),
         np.where(low, rp_lo, rp_hi), np.where(low, ln.rp_min, ln.rp_max))], warn, "Ω")
-    tr = pu.rise_time(rp_hi, ln.cb, ln.factor)
+    tr = pu.rise_time(rp_hi, ln.cb, ln.rise_factor)
     f["rise_time"] = tr
     out.pick("rise-time", up, [(max_margin(tr, lim.tr_max), tr, lim.tr_max)], warn, "s")
     # -- low levels
@@ -312,7 +312,7 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
             if not d.is_controller and not d.is_bridge and ctx.parts.timing(d).f_max is not None]
     if slow:
         f_dev = _reduce(np.min, slow)
-        out.pick("device-speed", None, [(min_margin(f_dev, clock), f_dev, clock)], 0.0, "Hz")
+        out.pick("device-speed", None, [(max_margin(clock, f_dev), clock, f_dev)], 0.0, "Hz")
     # -- SDA data setup
     tr_sda = figs["sda"]["rise_time"]
     def drives_sda(d, seg):

@@ -319,7 +319,7 @@ class _Driver:
     tap: _Tap
     v_ol: Any
     i_ol: Any
-    r_on: Any
+    r_sink: Any            # v_ol / i_ol [Ω]
     r_series: Any
     offset: Any = None
 
@@ -342,7 +342,7 @@ class _Line:
     r_parts: Any
     rp_min: Any
     rp_max: Any
-    factor: Any
+    rise_factor: Any
     pullup: Any = None     # the design resistor on this line
 
 
@@ -462,9 +462,10 @@ def _line(bus, seg, signal, function, v, parts, scen, lim, board) -> _Line:
     for d in drivers:
         best = np.maximum(best, rp_min_of(v_max, d.v_ol[:, -1:], d.i_ol))
     rp_min = np.where(np.asarray(best) > 0, best, 1e-3)
-    factor = lim.rise_factor(v[:, :1])
-    rp_max = rp_max_of(lim, factor, cb)
-    return _Line(signal, taps, cb, leak, drivers, receivers, r_parts, rp_min, rp_max, factor)
+    rise_factor = lim.rise_factor(v[:, :1])
+    rp_max = rp_max_of(lim, rise_factor, cb)
+    return _Line(signal, taps, cb, leak, drivers, receivers, r_parts, rp_min, rp_max,
+                 rise_factor)
 
 
 def _choose(s: _Seg) -> None:

@@ -13,6 +13,7 @@ from pinlib.engines.opendrain.inputs import (
     _f,
     _offset_side,
     _taps,
+    value_source,
 )
 from pinlib.engines.opendrain.rules import (
     _COMMON,
@@ -97,7 +98,8 @@ def _offset_check(ctx, seg_in: SegmentInputs, d, grp: Group) -> None:
     rows.sort(key=lambda x: x[0])
     m, c, r, sig = rows[0]
     chk = check_max("bridge-offset", float(off[c]), float(r.v_il[c]), "V",
-                    f"{d.part_id} sides.{d.side}.low_offset; VIL from {r.source}",
+                    f"{value_source(d, f'sides.{d.side}.low_offset', side.low_offset)}; "
+                    f"VIL from {r.source}",
                     f"{d.ref} drives side {d.side} low to {_f(off[c], 'V')} (static "
                     "offset) "
                     f"against VIL {_f(r.v_il[c], 'V')} of {r.tap.label} ({sig.upper()})",

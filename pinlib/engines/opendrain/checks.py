@@ -27,6 +27,7 @@ from pinlib.engines.opendrain.inputs import (
     _default,
     _f,
     _taps,
+    value_source,
 )
 from pinlib.engines.opendrain.rules import (
     _COMMON,
@@ -98,7 +99,15 @@ def _window_check(ctx: Context, seg_in: SegmentInputs, ln: LineInputs) -> Check:
     lo_text = _f(ln.rp_min, 'Ω') if np.isfinite(ln.rp_min) else "none (no value: see below)"
     hi_text = _f(ln.rp_max, 'Ω') if np.isfinite(ln.rp_max) else "no upper limit"
     window = f"[{lo_text}, {hi_text}]"
-    if m_lo <= m_hi:
+    if not np.isfinite(ln.rp_min):
+        # the far side's pull-ups alone exceed a sink's rating: no Rp(min) exists
+        reason = ("no Rp(min) exists: the pull-ups across the translator alone draw more "
+                  "than the weakest sink's rating, so no pull-up on this segment is large "
+                  "enough")
+        chk = Check("pullup-window", "fail", r_eff * (1 - tol), None, "Ω", None, src,
+                    f"{up} pull-up {shown} at −{tol:.0%}: {_f(r_eff * (1 - tol), 'Ω')}; "
+                    f"{reason}", subject=up, details=details, reason=reason)
+    elif m_lo <= m_hi:
         chk = check_min("pullup-window", r_eff * (1 - tol), ln.rp_min, "Ω", src,
                         f"{up} pull-up {shown} at −{tol:.0%}: {_f(r_eff * (1 - tol), 'Ω')} "
                         f"against the window {window}", subject=up, details=details, **ctx.kw())
@@ -433,11 +442,11 @@ def _timing_checks(ctx: Context, seg_in: SegmentInputs, grp: Group, per_line: di
             if not d.is_controller and not d.is_bridge and d.part.timing.f_max is not None]
     if slow:
         f_dev, d = min(slow, key=lambda x: x[0])
-        fm = d.part.timing.f_max
-        why = fm.source or d.part.provenance.source or "part file"
-        grp.add(check_min("device-speed", f_dev, clock, "Hz", f"{d.part_id} timing.f_max ({why})",
-                          f"slowest device {d.ref} takes up to {_f(f_dev, 'Hz')} against the "
-                          f"{_f(clock, 'Hz')} clock", subject=d.ref, warn_margin=0.0))
+        src = value_source(d, "timing.f_max", d.part.timing.f_max)
+        grp.add(check_max("device-speed", clock, f_dev, "Hz", src,
+                          f"clock {_f(clock, 'Hz')} against the slowest device {d.ref}'s "
+                          f"rated {_f(f_dev, 'Hz')}", subject=d.ref,
+                          warn_margin=0.0))  # a rating: at it is inside
     # -- SDA data setup
     tr_sda = sda["rise_time"]
     rows = []
@@ -511,8 +520,10 @@ def _domain_checks(ctx: Context, seg_in: SegmentInputs, grp: Group, taps: list) 
     if rows:
         rows.sort(key=lambda x: x[0])
         _, low_side, lo, hi, sup, t = rows[0]
-        why = sup.min.source or t.dev.part.provenance.source or "part file"
-        src = f"{t.dev.part_id} supply ({why})"
+        side = t.dev.side
+        where = "supply" if sup is t.dev.part.supply else f"sides.{side}.supply"
+        src = (value_source(t.dev, f"{where}.min", sup.min) if low_side
+               else value_source(t.dev, f"{where}.max", sup.max))
         rng = f"{_f(float(sup.min.value), 'V')} to {_f(float(sup.max.value), 'V')}"
         if low_side:
             chk = check_min("supply-range", lo, float(sup.min.value), "V", src,

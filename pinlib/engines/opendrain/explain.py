@@ -111,8 +111,7 @@ def _no_fit_advice(lim: OpenDrainLimits, seg_in: SegmentInputs, ln: LineInputs) 
                     f"{label or '—'}) is above Rp(max) "
                     f"{_f(ln.rp_max, 'Ω')} at Cb {_f(ln.cb, 'F')}")
     eff_lo = rp_min / (1 - tol)
-    factor = ln.rise_factor
-    cb_lim = float(pu.cb_limit(lim.tr_max, rp_min, tol, factor))
+    cb_lim = float(pu.cb_limit(lim.tr_max, rp_min, tol, ln.rise_factor))
     tips.append(f"bring Cb below {_f(cb_lim, 'F')} (now {_f(ln.cb, 'F')}: "
                 f"{_f(ln.cb - cb_lim, 'F')} less: shorter traces or cable, fewer loads)")
     lower = lim.lower()
@@ -154,7 +153,7 @@ def fall_basis(lim, d, info: dict, c: int, cb: float) -> tuple[str, dict]:
     t_sink = float(info["t_sink"][c])
     t_of = None if info["t_of"] is None else float(np.broadcast_to(info["t_of"], (2,))[c])
     sink = (f"sinking at least {_f(d.i_ol, 'A')} above {_f(float(d.v_ol[c]), 'V')} and as "
-            f"{_f(float(d.r_on[c]), 'Ω')} (VOL/IOL) below it")
+            f"{_f(float(d.r_sink[c]), 'Ω')} (VOL/IOL) below it")
     details = {"bound": "constant sink current", "sink_bound": t_sink,
                "sink_model": SINK_MODEL}
     if t_of is not None and np.isfinite(t_of) and t_of <= t_sink:

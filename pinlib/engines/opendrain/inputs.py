@@ -11,6 +11,7 @@ those of :mod:`.rules`, which the array checks of :mod:`.batch` apply too.
 from __future__ import annotations
 
 import math
+import os
 import warnings
 from dataclasses import dataclass, field
 
@@ -67,13 +68,30 @@ class _Tap:
         return f"{self.dev.ref}{side}"
 
     def source(self, field_name: str) -> str:
-        value = getattr(self.pin, field_name)
-        where = f"{self.dev.part_id} pins.{self.pin_name}.{field_name}"
-        bits = [b for b in (getattr(value, "basis", None), getattr(value, "source", None)) if b]
-        if not bits:
-            prov = self.dev.part.provenance
-            bits = [b for b in (prov.basis, prov.source) if b]
-        return f"{where} ({': '.join(bits)})" if bits else where
+        return value_source(self.dev, f"pins.{self.pin_name}.{field_name}",
+                            getattr(self.pin, field_name))
+
+
+def value_source(dev: Device, path: str, value) -> str:
+    """Where a part's value comes from, for a check's ``source``: the placed part and the
+    field, then the part and file that set the value (the class it extends, when
+    inherited) with that value's basis and source (:meth:`Sourced.provenance_text`):
+    ``'eeprom-i2c pins.sda.v_il from i2c-peripheral (i2c-peripheral.toml), generic: ...'``,
+    ``'mcu-3v3 pins.scl.i_ol (mcu-3v3.toml), datasheet: rev B'``.  A value without a
+    recorded origin is taken as the placed part's own."""
+    where = f"{dev.part_id} {path}"
+    if isinstance(value, Sourced) and value.origin:
+        if value.origin != dev.part_id:
+            return f"{where} from {value.provenance_text()}"
+        if value.origin_file:  # the placed part's own file: named once, by its file
+            where += f" ({os.path.basename(value.origin_file)})"
+        bits = ": ".join(b for b in (value.basis, value.source) if b)
+        return f"{where}, {bits}" if bits else where
+    bits = [b for b in (getattr(value, "basis", None), getattr(value, "source", None)) if b]
+    if not bits:
+        prov = dev.part.provenance
+        bits = [b for b in (prov.basis, prov.source) if b]
+    return f"{where} ({': '.join(bits)})" if bits else where
 
 
 @dataclass
@@ -81,7 +99,7 @@ class _Driver:
     tap: _Tap
     v_ol: np.ndarray        # guaranteed low level at i_ol, per corner [V]
     i_ol: float             # [A]
-    r_on: np.ndarray        # v_ol / i_ol, per corner [Ω]
+    r_sink: np.ndarray      # the sink's effective resistance v_ol / i_ol, per corner [Ω]
     r_series: float         # [Ω]
     source_i: str
     offset: float | None = None   # static low-offset level of a repeater side [V]
@@ -110,7 +128,7 @@ class LineInputs:
     leakage : float
         Sum of the pins' leakage. [A]
     rp_min, rp_max : float
-        The pull-up window (UM10204 eq. 2 and eq. 1, or the SMBus factor). [Ω]
+        The pull-up window (UM10204 eq. 2 and eq. 1, or the SMBus rise factor). [Ω]
     r_parts : float
         The parts' own pull-ups in parallel, nominal; ``inf`` for none. [Ω]
     rise_factor : float
@@ -267,7 +285,7 @@ def _leakage(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits, up: 
             leak += value
         if t.pin.leakage is None and value is not None:
             _default(seg_in, f"no leakage stated: taken at the specification's "
-                             f"{_f(lim.i_leak, 'A')} ({lim.source_pin})", f"{t.label} {up}")
+                             f"{_f(lim.leakage, 'A')} ({lim.source_pin})", f"{t.label} {up}")
     return leak
 
 
@@ -360,10 +378,10 @@ def _line_inputs(signal: str, seg_in: SegmentInputs, lim: OpenDrainLimits,
     part_pullups = _part_pullups(taps, seg_in, up)
     r_parts = float(pu.parallel(*[p["value"] for p in part_pullups])) if part_pullups else math.inf
     rp_min, weakest = _weakest_sink(drivers, float(v[1]))
-    factor = float(lim.rise_factor(float(v[0])))
-    rp_max = rp_max_of(lim, factor, cb)
+    rise_factor = float(lim.rise_factor(float(v[0])))
+    rp_max = rp_max_of(lim, rise_factor, cb)
     return LineInputs(signal, taps, cb, cb_parts, leak, drivers, receivers, part_pullups,
-                      r_parts, rp_min, weakest, rp_max, factor,
+                      r_parts, rp_min, weakest, rp_max, rise_factor,
                       weakest.tap.label if weakest else "")
 
 

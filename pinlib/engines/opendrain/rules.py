@@ -57,7 +57,7 @@ def pin_rules(pin: Pin, part, lim: OpenDrainLimits) -> tuple[bool, bool, float |
     receiver = pin.v_il is not None or pin.v_ih is not None or not (quiet or mosfet)
     if pin.leakage is not None:
         return driver, receiver, float(pin.leakage.value)
-    return driver, receiver, None if quiet else lim.i_leak
+    return driver, receiver, None if quiet else lim.leakage
 
 
 def abs_max_follows(pin: Pin) -> bool:
@@ -75,14 +75,14 @@ def rp_min_of(v_max, v_ol, i_ol):
     return np.where(ok, rc.rp_min(v_max, np.where(ok, v_ol, 0.0), i_ol), 0.0)
 
 
-def rp_max_of(lim: OpenDrainLimits, factor, cb):
+def rp_max_of(lim: OpenDrainLimits, rise_factor, cb):
     """Rp(max) of a line, UM10204 eq. 1 (or the SMBus rise points): ``inf`` where Cb is
     0 (nothing bounds the pull-up from above); scalars or arrays. [Ω]"""
-    if np.ndim(cb) == 0 and np.ndim(factor) == 0:
-        return float(rc.rp_max(lim.tr_max, cb, factor)) if cb > 0 else math.inf
+    if np.ndim(cb) == 0 and np.ndim(rise_factor) == 0:
+        return float(rc.rp_max(lim.tr_max, cb, rise_factor)) if cb > 0 else math.inf
     cb_arr = np.asarray(cb, dtype=float)
     ok = cb_arr > 0
-    return np.where(ok, rc.rp_max(lim.tr_max, np.where(ok, cb_arr, 1.0), factor), math.inf)
+    return np.where(ok, rc.rp_max(lim.tr_max, np.where(ok, cb_arr, 1.0), rise_factor), math.inf)
 
 
 def auto_margins(series: str, lines, tol: float):

@@ -20,7 +20,7 @@ def _log1p_over(x: np.ndarray) -> np.ndarray:
     return np.where(small, 1.0 - x / 2.0, np.log1p(xs) / xs)
 
 
-def rise_time(rp, cb, factor=RISE_30_70):
+def rise_time(rp, cb, rise_factor=RISE_30_70):
     """Rise time of a line charged through its pull-up.
 
     Parameters
@@ -29,15 +29,15 @@ def rise_time(rp, cb, factor=RISE_30_70):
         Pull-up resistance. [Ω]
     cb : float or array_like
         Bus capacitance. [F]
-    factor : float or array_like, optional
+    rise_factor : float or array_like, optional
         Rise time in units of RC: ``RISE_30_70`` (0.8473, UM10204) by default,
-        ``RISE_10_90`` (2.197) or an SMBus factor from
+        ``RISE_10_90`` (2.197) or an SMBus rise factor from
         :func:`pinlib.physics.rc.smbus_rise_factor`. [1]
 
     Returns
     -------
     float or numpy.ndarray
-        ``factor · rp · cb``. [s]
+        ``rise_factor · rp · cb``. [s]
 
     Examples
     --------
@@ -46,8 +46,8 @@ def rise_time(rp, cb, factor=RISE_30_70):
     """
     rp = _non_negative(rp, "rp", "[Ω]")
     cb = _non_negative(cb, "cb", "[F]")
-    factor = _positive(factor, "factor", "[1]")
-    return _out(factor * rp * cb)
+    rise_factor = _positive(rise_factor, "rise_factor", "[1]")
+    return _out(rise_factor * rp * cb)
 
 
 def _current_source_fall(rp, cb, vdd, i, v_from, v_to):

@@ -124,7 +124,7 @@ def sink_current(vdd, rp, r_sink, r_series=0.0):
     return _out(vdd * g / (1.0 + r_low * g))
 
 
-def high_level(vdd, rp, i_leak):
+def high_level(vdd, rp, leakage):
     """Bus-line voltage at rest, after the input leakage drop across the pull-up.
 
     Parameters
@@ -133,7 +133,7 @@ def high_level(vdd, rp, i_leak):
         Pull-up rail. [V]
     rp : float or array_like
         Pull-up resistance. [Ω]
-    i_leak : float or array_like
+    leakage : float or array_like
         Sum of the leakage currents of every pin on the line. [A]
 
     Returns
@@ -148,8 +148,8 @@ def high_level(vdd, rp, i_leak):
     """
     vdd = _non_negative(vdd, "vdd", "[V]")
     rp = _positive(rp, "rp", "[Ω]")
-    i_leak = _non_negative(i_leak, "i_leak", "[A]")
-    return _out(vdd - rp * i_leak)
+    leakage = _non_negative(leakage, "leakage", "[A]")
+    return _out(vdd - rp * leakage)
 
 
 def static_power(vdd, rp, r_sink, r_series=0.0):

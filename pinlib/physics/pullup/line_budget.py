@@ -34,7 +34,7 @@ class Budget(NamedTuple):
     power: np.ndarray | float
 
 
-def budget(rp, cb, vdd, *, v_ol=0.4, i_ol=3e-3, tr_max=300e-9, i_leak=0.0, r_series=0.0,
+def budget(rp, cb, vdd, *, v_ol=0.4, i_ol=3e-3, tr_max=300e-9, leakage=0.0, r_series=0.0,
            lo=0.3, hi=0.7):
     """The whole pull-up budget of one line, elementwise over Rp, Cb and VDD.
 
@@ -52,7 +52,7 @@ def budget(rp, cb, vdd, *, v_ol=0.4, i_ol=3e-3, tr_max=300e-9, i_leak=0.0, r_ser
         The driver's sink current; default 3 mA (UM10204 table 9). [A]
     tr_max : float or array_like, optional
         Rise-time limit for Rp(max); default 300 ns (Fast-mode, UM10204 table 10). [s]
-    i_leak : float or array_like, optional
+    leakage : float or array_like, optional
         Total leakage of the line. [A]
     r_series : float or array_like, optional
         Series resistor of the driver. [Ω]
@@ -79,7 +79,7 @@ def budget(rp, cb, vdd, *, v_ol=0.4, i_ol=3e-3, tr_max=300e-9, i_leak=0.0, r_ser
                                       _positive(vdd, "vdd", "[V]"))
     lo_a, hi_a = _arr(lo, "lo"), _arr(hi, "hi")
     k = np.log1p(-lo_a) - np.log1p(-hi_a)
-    r_on = sink_resistance(v_ol, i_ol)
+    r_sink = sink_resistance(v_ol, i_ol)
     with np.errstate(divide="ignore"):
         rpmax = np.where(cb > 0, _arr(tr_max, "tr_max") / (k * np.where(cb > 0, cb, 1.0)), np.inf)
     return Budget(
@@ -88,8 +88,8 @@ def budget(rp, cb, vdd, *, v_ol=0.4, i_ol=3e-3, tr_max=300e-9, i_leak=0.0, r_ser
         rise_time=_out(k * rp * cb),
         rise_time_10_90=_out(RISE_10_90 * rp * cb),
         fall_time=fall_time_bound(rp, cb, vdd, v_ol, i_ol, hi_a * vdd, lo_a * vdd, r_series),
-        v_ol=low_level(vdd, rp, r_on, r_series),
-        v_oh=high_level(vdd, rp, i_leak),
-        sink_current=sink_current(vdd, rp, r_on, r_series),
-        power=static_power(vdd, rp, r_on, r_series),
+        v_ol=low_level(vdd, rp, r_sink, r_series),
+        v_oh=high_level(vdd, rp, leakage),
+        sink_current=sink_current(vdd, rp, r_sink, r_series),
+        power=static_power(vdd, rp, r_sink, r_series),
     )

@@ -49,7 +49,7 @@ def pullup_margins(r, rp_min, rp_max, tolerance=0.0, r_parallel=np.inf):
     return _out(r_eff * (1 - tol) / rp_min - 1.0), _out(1.0 - r_eff * (1 + tol) / rp_max)
 
 
-def cb_limit(tr, rp_min, tolerance=0.0, factor=RISE_30_70):
+def cb_limit(tr, rp_min, tolerance=0.0, rise_factor=RISE_30_70):
     """The largest bus capacitance for which a resistor pull-up meets both limits.
 
     Parameters
@@ -60,26 +60,26 @@ def cb_limit(tr, rp_min, tolerance=0.0, factor=RISE_30_70):
         Rp(min) from the weakest sink. [Ω]
     tolerance : float or array_like, optional
         Relative tolerance of the pull-up. [1]
-    factor : float or array_like, optional
+    rise_factor : float or array_like, optional
         Rise time in units of RC (0.8473 for 30–70 %). [1]
 
     Returns
     -------
     float or numpy.ndarray
-        :math:`C_{b,max} = t_r (1 - tol) / (k R_{p,min} (1 + tol))`: with a resistor at
+        ``Cb(max) = tr (1 - tol) / (rise_factor · rp_min (1 + tol))``: with a resistor at
         its lowest still above Rp(min), its highest still meets tr. [F]
 
     Notes
     -----
     From UM10204 rev. 6 eq. 1 and 2: the window is empty once
-    :math:`t_r/(k C_b) < R_{p,min}`.  The §7.2.4 example: Rp(min) 1.7 kΩ at tr 300 ns
+    ``tr / (rise_factor · Cb) < Rp(min)``.  The §7.2.4 example: Rp(min) 1.7 kΩ at tr 300 ns
     limits Cb to about 200 pF.
     """
     tr = _non_negative(tr, "tr", "[s]")
     rp_min = _positive(rp_min, "rp_min", "[Ω]")
     tol = _non_negative(tolerance, "tolerance", "[1]")
-    factor = _positive(factor, "factor", "[1]")
-    return _out(tr * (1 - tol) / (factor * rp_min * (1 + tol)))
+    rise_factor = _positive(rise_factor, "rise_factor", "[1]")
+    return _out(tr * (1 - tol) / (rise_factor * rp_min * (1 + tol)))
 
 
 def sink_current_needed(vdd, v_ol, rp_max, tolerance=0.0):
