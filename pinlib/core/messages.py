@@ -10,7 +10,7 @@ A constant with ``{placeholders}`` is a template, filled with ``str.format``::
 The other constants are the texts of pinlib's warnings (the ``ValidityWarning`` of
 ``pinlib/physics/lines.py`` and of ``pinlib/physics/waveform.py``, the ``FitWarning`` of
 ``pinlib/physics/driver.py``) and the sentences that the design-review report
-(``pinlib/present/review.py``) prints where a chart could not be drawn, no sampled check varies,
+(``pinlib/present/review/``) prints where a chart could not be drawn, no sampled check varies,
 or there is no snapshot to compare with.
 
 ``tests/test_messages.py`` triggers each of them once and checks the text.
@@ -380,7 +380,7 @@ NO_SPI_BUS = "the design has no SPI bus"
 NO_SPI_BUS_OF_ID = "no SPI bus of that id"
 NO_TEAM_PART = "no team part to record into"
 
-# ---------------------------------------------------------------- pinlib/present/review.py
+# ---------------------------------------------------------------- pinlib/present/review/
 # Sentences the design-review report prints in place of what it could not draw or
 # compare (whole sentences, not the problem of an error)
 CHART_NOT_DRAWN = "Chart not drawn: {error}"
@@ -460,7 +460,14 @@ MODULES = (
     "pinlib.present.widgets.spibudget",
     "pinlib.present.widgets.recorder",
     "pinlib.present.widgets.swaps",
-    "pinlib.present.review",
+    "pinlib.present.review.draw",
+    "pinlib.present.review.charts",
+    "pinlib.present.review.montecarlo",
+    "pinlib.present.review.text",
+    "pinlib.present.review.parts",
+    "pinlib.present.review.html",
+    "pinlib.present.review.markdown",
+    "pinlib.present.review.build",
     "pinlib.cli.commands.check",
     "pinlib.cli.commands.report",
     "pinlib.cli.commands.candidates",
