@@ -317,7 +317,7 @@ REVISIT_PROBE = ("the measurement: the probe's capacitance, its ground lead, and
 LEVELS_FORM = "measuring levels are two numbers, low,high"
 
 # ---------------------------------------------------------------- studies
-# pinlib/studies/compare.py
+# pinlib/studies/compare/
 NO_SNAPSHOT_PLACE = "the design was not loaded from a file, so it has no snapshot place"
 NOT_A_RESULT = "not a result"
 SNAPSHOT_NOT_JSON = "the snapshot is not valid JSON: {detail}"
@@ -447,7 +447,10 @@ MODULES = (
     "pinlib.engines.spi",
     "pinlib.engines.bench",
     "pinlib.cli.commands.measured",
-    "pinlib.studies.compare",
+    "pinlib.studies.compare.snapshots",
+    "pinlib.studies.compare.figures",
+    "pinlib.studies.compare.changes",
+    "pinlib.studies.compare.substitution",
     "pinlib.studies.snapshotcheck",
     "pinlib.studies.candidates",
     "pinlib.studies.whatif",
