@@ -331,7 +331,7 @@ EDIT_CHANGES_MORE = "editing the design file would change more than the parts"
 EDIT_LOST_PART = "the edited design does not hold the new part"
 # pinlib/studies/candidates.py
 UNKNOWN_CATEGORY = "unknown category"
-# pinlib/studies/whatif.py
+# pinlib/studies/whatif/
 UNKNOWN_DISTRIBUTION = "unknown distribution"
 NOT_A_PROPORTION = "not a proportion"
 NOT_A_CONFIDENCE = "not a confidence level"
@@ -453,7 +453,14 @@ MODULES = (
     "pinlib.studies.compare.substitution",
     "pinlib.studies.snapshotcheck",
     "pinlib.studies.candidates",
-    "pinlib.studies.whatif",
+    "pinlib.studies.whatif.tolerances",
+    "pinlib.studies.whatif.yields",
+    "pinlib.studies.whatif.checknames",
+    "pinlib.studies.whatif.tally",
+    "pinlib.studies.whatif.mcresult",
+    "pinlib.studies.whatif.sensitivity",
+    "pinlib.studies.whatif.montecarlo",
+    "pinlib.studies.whatif.cornersearch",
     "pinlib.present.plotdata",
     "pinlib.present.charts",
     "pinlib.present.widgets.common",
