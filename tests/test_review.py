@@ -615,7 +615,7 @@ def test_histograms_of_a_long_run_say_which_boards_they_hold(demo, monkeypatch):
     from pinlib.studies import whatif
 
     design, _ = demo
-    monkeypatch.setattr(whatif, "SENSITIVITY_BOARDS", 200)   # a long run, in small
+    monkeypatch.setattr(whatif.montecarlo, "SENSITIVITY_BOARDS", 200)   # a long run, in small
     mc = whatif.monte_carlo(design, 500, seed=11, progress=False, chunk=150)
     charts, _ = review._mc_charts(mc, review._Keys())
     assert charts and all(chart.svg and chart.error is None for chart in charts)

@@ -382,7 +382,7 @@ def test_chunks_do_not_change_the_run(distribution):
 def test_a_long_run_keeps_counts_of_every_board_and_samples_of_the_first(tmp_path, monkeypatch):
     d = tolerant(tmp_path)
     full = whatif.monte_carlo(d, 3000, seed=11, chunk=400)
-    monkeypatch.setattr(whatif, "SENSITIVITY_BOARDS", 1000)
+    monkeypatch.setattr(whatif.montecarlo, "SENSITIVITY_BOARDS", 1000)
     part = whatif.monte_carlo(d, 3000, seed=11, chunk=400)
     _same_counts(full, part)
     assert np.array_equal(part.draws, full.draws[:1000])

@@ -154,7 +154,7 @@ def test_too_many_boards_gives_the_number_and_the_limit(tmp_path):
 def test_monte_carlo_memory_does_not_grow_with_the_boards(tmp_path, monkeypatch):
     # Sensitivities keep the first SENSITIVITY_BOARDS boards' draws; made small here so
     # that every board beyond them goes through chunks that are dropped.
-    monkeypatch.setattr(whatif, "SENSITIVITY_BOARDS", 500)
+    monkeypatch.setattr(whatif.montecarlo, "SENSITIVITY_BOARDS", 500)
     design = load_design(_write(tmp_path, HEAD + """
 [[bus]]
 id = "b"

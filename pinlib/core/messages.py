@@ -10,7 +10,7 @@ A constant with ``{placeholders}`` is a template, filled with ``str.format``::
 The other constants are the texts of pinlib's warnings (the ``ValidityWarning`` of
 ``pinlib/physics/lines.py`` and of ``pinlib/physics/waveform.py``, the ``FitWarning`` of
 ``pinlib/physics/driver.py``) and the sentences that the design-review report
-(``pinlib/present/review.py``) prints where a chart could not be drawn, no sampled check varies,
+(``pinlib/present/review/``) prints where a chart could not be drawn, no sampled check varies,
 or there is no snapshot to compare with.
 
 ``tests/test_messages.py`` triggers each of them once and checks the text.
@@ -318,7 +318,7 @@ REVISIT_PROBE = ("the measurement: the probe's capacitance, its ground lead, and
 LEVELS_FORM = "measuring levels are two numbers, low,high"
 
 # ---------------------------------------------------------------- studies
-# pinlib/studies/compare.py
+# pinlib/studies/compare/
 NO_SNAPSHOT_PLACE = "the design was not loaded from a file, so it has no snapshot place"
 NOT_A_RESULT = "not a result"
 SNAPSHOT_NOT_JSON = "the snapshot is not valid JSON: {detail}"
@@ -332,7 +332,7 @@ EDIT_CHANGES_MORE = "editing the design file would change more than the parts"
 EDIT_LOST_PART = "the edited design does not hold the new part"
 # pinlib/studies/candidates.py
 UNKNOWN_CATEGORY = "unknown category"
-# pinlib/studies/whatif.py
+# pinlib/studies/whatif/
 UNKNOWN_DISTRIBUTION = "unknown distribution"
 NOT_A_PROPORTION = "not a proportion"
 NOT_A_CONFIDENCE = "not a confidence level"
@@ -381,7 +381,7 @@ NO_SPI_BUS = "the design has no SPI bus"
 NO_SPI_BUS_OF_ID = "no SPI bus of that id"
 NO_TEAM_PART = "no team part to record into"
 
-# ---------------------------------------------------------------- pinlib/present/review.py
+# ---------------------------------------------------------------- pinlib/present/review/
 # Sentences the design-review report prints in place of what it could not draw or
 # compare (whole sentences, not the problem of an error)
 CHART_NOT_DRAWN = "Chart not drawn: {error}"
@@ -448,10 +448,20 @@ MODULES = (
     "pinlib.engines.spi",
     "pinlib.engines.bench",
     "pinlib.cli.commands.measured",
-    "pinlib.studies.compare",
+    "pinlib.studies.compare.snapshots",
+    "pinlib.studies.compare.figures",
+    "pinlib.studies.compare.changes",
+    "pinlib.studies.compare.substitution",
     "pinlib.studies.snapshotcheck",
     "pinlib.studies.candidates",
-    "pinlib.studies.whatif",
+    "pinlib.studies.whatif.tolerances",
+    "pinlib.studies.whatif.yields",
+    "pinlib.studies.whatif.checknames",
+    "pinlib.studies.whatif.tally",
+    "pinlib.studies.whatif.mcresult",
+    "pinlib.studies.whatif.sensitivity",
+    "pinlib.studies.whatif.montecarlo",
+    "pinlib.studies.whatif.cornersearch",
     "pinlib.present.plotdata",
     "pinlib.present.charts",
     "pinlib.present.widgets.common",
@@ -461,7 +471,14 @@ MODULES = (
     "pinlib.present.widgets.spibudget",
     "pinlib.present.widgets.recorder",
     "pinlib.present.widgets.swaps",
-    "pinlib.present.review",
+    "pinlib.present.review.draw",
+    "pinlib.present.review.charts",
+    "pinlib.present.review.montecarlo",
+    "pinlib.present.review.text",
+    "pinlib.present.review.parts",
+    "pinlib.present.review.html",
+    "pinlib.present.review.markdown",
+    "pinlib.present.review.build",
     "pinlib.cli.commands.check",
     "pinlib.cli.commands.report",
     "pinlib.cli.commands.candidates",

@@ -446,10 +446,28 @@ def rank_candidates(design: Design, ref: str, *, categories=None, progress=None)
     places = _per_bus(positions(design, ref))
     parts, excluded = eligible(design, ref, categories)
     current = places[0][1].part_id
-    notes = []
     fast_buses = [bus for bus, dev in places
                   if bus.protocol in OPEN_DRAIN_PROTOCOLS and not dev.is_bridge]
     slow_buses = [bus.id for bus, _ in places if bus not in fast_buses]
+    table = _Summaries(design, ref, parts, places, slow_buses)
+    table.notes += _one_at_a_time_notes(places, fast_buses)
+    collected = {bus.id: od.collect(bus, design) for bus in fast_buses}
+    with progress_bar(len(parts) * len(places), desc=f"candidates for {ref}", unit="part",
+                      enabled=progress) as bar:
+        for bus in fast_buses:
+            table.add_fast_bus(bus, collected[bus.id], bar)
+        if slow_buses:
+            table.add_slow_buses(bar)
+    out = [table.candidate(p, current) for p in parts]
+    out.sort(key=Candidate.sort_key)
+    return Ranking(design.title, ref, current, _bus_rows(places), out, excluded,
+                   len(design.library.placeable()), table.notes,
+                   set_aside=set_aside(design, categories))
+
+
+def _one_at_a_time_notes(places, fast_buses: list) -> list[str]:
+    """A note for each bus whose candidates are evaluated one at a time, and why."""
+    notes = []
     for bus, dev in places:
         if bus in fast_buses:
             continue
@@ -457,61 +475,78 @@ def rank_candidates(design: Design, ref: str, *, categories=None, progress=None)
                f"the {bus.protocol} engine simulates each edge in time and has no vectorized "
                "model yet")
         notes.append(f"bus {bus.id}: candidates evaluated one at a time ({why})")
-    collected = {bus.id: od.collect(bus, design) for bus in fast_buses}
-    # per candidate and bus: (status code, margin, where, figures) or an error
-    per: dict[str, dict] = {p.id: {} for p in parts}
-    methods = {p.id: "vectorized" if not slow_buses else "per-candidate" for p in parts}
-    errors: dict[str, PinlibError] = {}
-    with progress_bar(len(parts) * len(places), desc=f"candidates for {ref}", unit="part",
-                      enabled=progress) as bar:
-        for bus in fast_buses:
-            dev = next(d for b, d in places if b is bus)
-            lim = collected[bus.id][0]
-            groups: dict[tuple, list[Part]] = {}
-            for p in parts:
-                groups.setdefault(ob.structure(p, dev, bus, lim), []).append(p)
-            for group in groups.values():
-                try:
-                    rows = _batch_summaries(bus, dev, design, ref, group, collected[bus.id])
-                except PinlibError:
-                    rows = None
-                    notes.append(f"bus {bus.id}: a group of {len(group)} candidates fell back "
-                                 "to one-at-a-time evaluation (a value the physics refuses)")
-                if rows is None:
-                    for p in group:
-                        methods[p.id] = "per-candidate"
-                        try:
-                            res = _one(design, ref, p, places, {bus.id})[0]
-                        except PinlibError as err:
-                            errors.setdefault(p.id, err)
-                            continue
-                        st, m, w, f, ms = _summary_of([res], [(bus, dev)])
-                        per[p.id][bus.id] = (STATUSES.index(st), m, w, f[bus.id], ms)
-                else:
-                    for p, row in zip(group, rows, strict=True):
-                        per[p.id][bus.id] = row
-                bar.update(len(group))
-        if slow_buses:
-            for p in parts:
-                try:
-                    results = _one(design, ref, p, places, set(slow_buses))
-                except PinlibError as err:
-                    errors.setdefault(p.id, err)
-                    bar.update(len(slow_buses))
-                    continue
-                sub = [(b, d) for b, d in places if b.id in slow_buses]
-                for r, pl in zip(results, sub, strict=True):
-                    st, m, w, f, ms = _summary_of([r], [pl])
-                    per[p.id][r.id] = (STATUSES.index(st), m, w, f[r.id], ms)
-                bar.update(len(slow_buses))
-    out = []
-    for p in parts:
-        if p.id in errors:
-            out.append(_failed(p, current, methods[p.id], errors[p.id]))
-            continue
+    return notes
+
+
+class _Summaries:
+    """A ranking being filled: per candidate and bus its summary (status code, margin,
+    where, figures, margins), each candidate's method and first error, and the notes."""
+
+    def __init__(self, design: Design, ref: str, parts: list[Part], places, slow_buses: list):
+        self.design, self.ref, self.parts, self.places = design, ref, parts, places
+        self.slow_buses = slow_buses
+        self.notes: list[str] = []
+        # per candidate and bus: (status code, margin, where, figures) or an error
+        self.per: dict[str, dict] = {p.id: {} for p in parts}
+        self.methods = {p.id: "vectorized" if not slow_buses else "per-candidate"
+                        for p in parts}
+        self.errors: dict[str, PinlibError] = {}
+
+    def add_fast_bus(self, bus: Bus, collected, bar) -> None:
+        """Every candidate on an open-drain bus, a batch per group of like parts."""
+        dev = next(d for b, d in self.places if b is bus)
+        lim = collected[0]
+        groups: dict[tuple, list[Part]] = {}
+        for p in self.parts:
+            groups.setdefault(ob.structure(p, dev, bus, lim), []).append(p)
+        for group in groups.values():
+            try:
+                rows = _batch_summaries(bus, dev, self.design, self.ref, group, collected)
+            except PinlibError:
+                rows = None
+                self.notes.append(f"bus {bus.id}: a group of {len(group)} candidates fell "
+                                  "back to one-at-a-time evaluation (a value the physics "
+                                  "refuses)")
+            if rows is None:
+                self._one_by_one(bus, dev, group)
+            else:
+                for p, row in zip(group, rows, strict=True):
+                    self.per[p.id][bus.id] = row
+            bar.update(len(group))
+
+    def _one_by_one(self, bus: Bus, dev: Device, group: list[Part]) -> None:
+        for p in group:
+            self.methods[p.id] = "per-candidate"
+            try:
+                res = _one(self.design, self.ref, p, self.places, {bus.id})[0]
+            except PinlibError as err:
+                self.errors.setdefault(p.id, err)
+                continue
+            st, m, w, f, ms = _summary_of([res], [(bus, dev)])
+            self.per[p.id][bus.id] = (STATUSES.index(st), m, w, f[bus.id], ms)
+
+    def add_slow_buses(self, bar) -> None:
+        """Every candidate on the buses evaluated one at a time, the design rebuilt with it."""
+        sub = [(b, d) for b, d in self.places if b.id in self.slow_buses]
+        for p in self.parts:
+            try:
+                results = _one(self.design, self.ref, p, self.places, set(self.slow_buses))
+            except PinlibError as err:
+                self.errors.setdefault(p.id, err)
+                bar.update(len(self.slow_buses))
+                continue
+            for r, pl in zip(results, sub, strict=True):
+                st, m, w, f, ms = _summary_of([r], [pl])
+                self.per[p.id][r.id] = (STATUSES.index(st), m, w, f[r.id], ms)
+            bar.update(len(self.slow_buses))
+
+    def candidate(self, p: Part, current: str) -> Candidate:
+        """One candidate over every bus of the position: its worst status and margin."""
+        if p.id in self.errors:
+            return _failed(p, current, self.methods[p.id], self.errors[p.id])
         status, best, where, figures, margins = 0, None, None, {}, []
-        for bus, _ in places:
-            st, m, w, f, ms = per[p.id][bus.id]
+        for bus, _ in self.places:
+            st, m, w, f, ms = self.per[p.id][bus.id]
             status = max(status, st)
             if m is not None and (best is None or m < best):
                 best, where = m, w
@@ -519,12 +554,8 @@ def rank_candidates(design: Design, ref: str, *, categories=None, progress=None)
             margins.extend(ms)
         if where is not None and "signal" in where:
             where = _where(where)
-        out.append(Candidate(p.id, p.title, p.category, STATUSES[status], best, where, figures,
-                             p.id == current, methods[p.id], margins=tuple(sorted(margins))))
-    out.sort(key=Candidate.sort_key)
-    return Ranking(design.title, ref, current, _bus_rows(places), out, excluded,
-                   len(design.library.placeable()), notes,
-                   set_aside=set_aside(design, categories))
+        return Candidate(p.id, p.title, p.category, STATUSES[status], best, where, figures,
+                         p.id == current, self.methods[p.id], margins=tuple(sorted(margins)))
 
 
 def _where(w: dict) -> dict:

@@ -1,0 +1,114 @@
+"""The charts of each bus of a design review: the pull-up windows of an open-drain bus;
+per push-pull line and driver, edge time against load and the far-end waveforms; the
+timing budget of an SPI bus."""
+
+from __future__ import annotations
+
+from pinlib.core.errors import PinlibError
+from pinlib.model.result import BusResult
+from pinlib.present.review.draw import ReviewChart, _draw, _f
+
+
+def _pullup_charts(bus, design, result: BusResult, keys, charts):
+    from pinlib.present import charts as ch
+    from pinlib.present import plotdata
+
+    for seg in bus.segments:
+        place = ("segment", bus.id, seg.id) if result.segments else ("bus", bus.id)
+        for sig in ("sda", "scl"):
+            where = f"{sig.upper()}" + (f", segment {seg.id}" if result.segments else "")
+            title = f"Pull-up window: {bus.id} {where}"
+            key = keys(bus.id, seg.id if result.segments else "", sig, "pullup-window")
+            try:
+                d = plotdata.pullup_window_data(bus, design, seg.id, sig, analysis=result)
+            except PinlibError as err:
+                charts.setdefault(place, []).append(
+                    ReviewChart(key, "pullup-window", title, "", None, err.message))
+                continue
+            sub = (f"tr ≤ {_f(d.tr_max, 's')}, rise = {d.rise_factor:.4g}·Rp·Cb; Rp(min) "
+                   f"{_f(d.rp_min, 'Ω')}" + (f" set by {d.weakest}" if d.weakest else ""))
+            caption = (f"Allowed pull-ups (shaded) between Rp(min) = (VDD(max) − VOL)/IOL of "
+                       f"the weakest sink and Rp(max) = tr/({d.rise_factor:.4g}·Cb). The "
+                       f"diamond is the design: {_f(d.chosen_rp, 'Ω')} on "
+                       f"{_f(d.chosen_cb, 'F')} (Rp(max) there {_f(d.rp_max_chosen, 'Ω')}). "
+                       f"Source: {d.source}.")
+            charts.setdefault(place, []).append(_draw(
+                key, "pullup-window", title, caption,
+                lambda d=d, title=title, sub=sub: ch.pullup_window(
+                    d.cb, d.rp_min, d.rp_max, chosen_cb=d.chosen_cb, chosen_rp=d.chosen_rp,
+                    title=title, subtitle=sub,
+                    chosen_label=f"design: {_f(d.chosen_rp, 'Ω')} at {_f(d.chosen_cb, 'F')}")))
+
+
+def _push_pull_charts(bus, design, result: BusResult, keys, charts):
+    import numpy as np
+
+    from pinlib.present import charts as ch
+    from pinlib.present import plotdata
+
+    lines = plotdata.line_analyses(bus, design, result)
+    for sig, la in lines.items():
+        place = ("line", bus.id, sig)
+        for ref in la.cases:
+            title = f"Edge time against load: {ref} driving {bus.id} {sig.upper()}"
+            key = keys(bus.id, sig, ref, "edges")
+            try:
+                e = plotdata.edge_vs_load_data(bus, design, sig, driver=ref, analysis=lines)
+                w = plotdata.waveform_data(bus, design, sig, driver=ref, analysis=lines)
+            except PinlibError as err:
+                charts.setdefault(place, []).append(
+                    ReviewChart(key, "edge-vs-load", title, "", None, err.message))
+                continue
+            op_label = e.operating_label
+            caption = (f"Curves: the driver model of {ref} (a ramp behind r_out, fitted to "
+                       "its datasheet edges) into a lumped load at the pin"
+                       + (f", without and with the {_f(e.rs, 'Ω')} series resistor" if e.rs
+                          else "")
+                       + ". Diamonds: the part's datasheet points. Cross: the engine's "
+                       f"operating point, the 10–90 % rise {_f(e.operating[1], 's')} at the far "
+                       f"end into {_f(e.operating[0], 'F')} (line and pins); the fall is "
+                       f"{_f(e.operating_fall, 's')}.")
+            charts.setdefault(place, []).append(_draw(
+                key, "edge-vs-load", title, caption,
+                lambda e=e, title=title, op_label=op_label: ch.edge_vs_load(
+                    e.loads, np.vstack(list(e.curves.values())), series=list(e.curves),
+                    points=e.points if len(e.points[0]) else None,
+                    operating=(e.operating[0], e.operating[1], op_label),
+                    curves_title=e.curves_title, edge_label="Edge time", title=title,
+                    subtitle=e.subtitle)))
+            title = f"Receiver waveforms: {bus.id} {sig.upper()} from {ref}"
+            rx = ", ".join(w.receivers) or "no receiver"
+            over = "; ".join(f"{n}: overshoot {_f(v, 'V')}" for n, v in w.overshoot.items())
+            caption = (f"Voltage at the far end ({rx}) for a rising and a falling edge of "
+                       f"{ref}" + (", with and without the series resistor" if e.rs else "")
+                       + f". Shaded: the band between VIL {_f(w.v_il, 'V')} and VIH "
+                       f"{_f(w.v_ih, 'V')}; dotted: VDD {_f(w.vdd, 'V')}. {over}."
+                       + ("".join(f" {n}." for n in w.notes)))
+            charts[place].append(_draw(
+                keys(bus.id, sig, ref, "waveforms"), "waveforms", title, caption,
+                lambda w=w, title=title, rx=rx: ch.waveforms(
+                    w.t, w.traces, v_il=w.v_il, v_ih=w.v_ih, vdd=w.vdd, title=title,
+                    subtitle=f"at {rx}")))
+    sa = plotdata.workings(bus, design, result) if bus.protocol == "spi" else None
+    if sa is not None and sa.terms:
+        title = f"SPI timing budget: {bus.id} at {_f(bus.clock, 'Hz')}"
+        key = keys(bus.id, "timing-budget")
+        try:
+            tb = plotdata.timing_budget_data(bus, design, analysis=sa)
+        except PinlibError as err:
+            charts.setdefault(("bus", bus.id), []).append(
+                ReviewChart(key, "timing-budget", title, "", None, err.message))
+            return
+        caption = ("Each bar is one requirement the engine checks: the time it uses against "
+                   "the time available (the tick: half the clock period, or the controller's "
+                   "CS lead). Flights run from the driver's datasheet reference (50 % into its "
+                   "test load) to the receiver's threshold on the real line; a term in the "
+                   "requirement's favour (a clock that arrives late on a setup path, data "
+                   "that arrives late on a hold path) is a credit that stacks left of zero. "
+                   "The margin is written beside each bar.")
+        charts.setdefault(("bus", bus.id), []).append(_draw(
+            key, "timing-budget", title, caption,
+            lambda tb=tb, title=title: ch.timing_budget(
+                tb.rows, available=tb.available, margins=tb.margins, status=tb.status,
+                title=title, subtitle=f"SPI mode {bus.spi_mode}, period "
+                                      f"{_f(tb.period, 's')}")))

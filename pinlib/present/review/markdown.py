@@ -1,0 +1,237 @@
+"""The design review as Markdown, every user-written text escaped so that it stays one
+line of plain text; the charts linked as SVG files or embedded as ``data:`` URIs."""
+
+from __future__ import annotations
+
+import base64
+import re
+
+from pinlib import __version__
+from pinlib.core import messages as M
+from pinlib.model.result import CAUTION, BusResult, Group
+from pinlib.present.review.draw import ReviewChart
+from pinlib.present.review.montecarlo import _MC_HEAD, _mc_cells, _mc_summary
+from pinlib.present.review.parts import (
+    _basis,
+    _origin,
+    _part_facts,
+    _part_heading,
+    _part_value,
+    _typ,
+)
+from pinlib.present.review.text import (
+    _MARK,
+    _STATUS_WORD,
+    _bus_counts,
+    _check_cells,
+    _counts,
+    _groups,
+    _margin,
+    _message,
+    _value,
+)
+
+# Every user-written text (titles, ids, descriptions, sources, part values, paths) goes
+# through _mt: one line (newlines and runs of spaces become one space), the characters
+# that start inline Markdown escaped (emphasis, code, links and images, tables,
+# strikethrough), the HTML ones as entities, and a block marker at its start (a heading,
+# a list, a quote) made plain.  It cannot end a table, open a code block or add an image.
+_MD_INLINE = str.maketrans({**{c: "\\" + c for c in "\\`*_[]|~"},
+                            "<": "&lt;", ">": "&gt;", "&": "&amp;"})
+# a heading (# x), a bullet (- x, + x), a rule or heading underline (---, ===), a
+# numbered item (1. x): each only with the space or line end that makes it one
+_MD_LINE_START = re.compile(r"^(?:(#{1,6}|[+-])(?=\s|$)|([=-])(?=[=\-\s]*$)"
+                            r"|(\d{1,9})([.)])(?=\s|$))")
+
+
+def _mt(text) -> str:
+    """User text for Markdown: one line in which nothing is markup (see above)."""
+    s = " ".join(str(text).split()).translate(_MD_INLINE)
+    return _MD_LINE_START.sub(_plain_start, s, count=1)
+
+
+def _plain_start(m: re.Match) -> str:
+    if m.group(3):
+        return m.group(3) + "\\" + m.group(4)
+    return "\\" + m.group(0)
+
+
+def _m(text) -> str:
+    """Text for a Markdown table cell (``|`` is escaped by _mt as well)."""
+    return _mt(text)
+
+
+def _code(text) -> str:
+    """Text shown as inline code, whatever backticks it holds: the fence is longer than
+    any run of backticks inside (CommonMark code spans), and the text is one line."""
+    s = " ".join(str(text).split())
+    run = max((len(r) for r in re.findall(r"`+", s)), default=0)
+    fence = "`" * (run + 1)
+    pad = " " if s.startswith("`") or s.endswith("`") or not s else ""
+    return f"{fence}{pad}{s}{pad}{fence}".replace("|", "\\|")
+
+
+def _with_code(template: str, **fields) -> str:
+    """A sentence of pinlib's whose `...` parts are code, filled with ``fields`` (a user's
+    path): the code parts through _code, the rest through _mt, the spaces between kept."""
+    out = []
+    for i, piece in enumerate(template.split("`")):
+        piece = piece.format(**fields)
+        if i % 2:
+            out.append(_code(piece))
+        elif piece.strip():
+            lead = " " if piece[0].isspace() and i else ""
+            tail = " " if piece[-1].isspace() else ""
+            out.append(lead + _mt(piece) + tail)
+        else:
+            out.append(" " if piece and i else "")
+    return "".join(out)
+
+
+def _fenced(text: str) -> list[str]:
+    """A fenced block of ``text`` whose fence no line of the text can close."""
+    run = max((len(r) for r in re.findall(r"`+", text)), default=0)
+    fence = "`" * max(3, run + 1)
+    return [fence, text, fence]
+
+
+def _row(cells) -> str:
+    return "| " + " | ".join(cells) + " |"
+
+
+def _table(head, rows) -> list[str]:
+    return [_row(head), _row(["---"] * len(head))] + [_row(r) for r in rows] + [""]
+
+
+class _Markdown:
+    """Writes the Markdown page of a :class:`~pinlib.present.review.build.Review`."""
+
+    def __init__(self, review, chart_dir: str | None):
+        self.r = review
+        self.dir = chart_dir.rstrip("/") if chart_dir else None
+        self.out: list[str] = []
+        self.files: dict[str, str] = {}
+
+    def w(self, *lines: str) -> None:
+        self.out.extend(lines)
+
+    def page(self) -> tuple[str, dict[str, str]]:
+        r, res = self.r, self.r.result
+        counts = _counts(res)
+        self.w(f"# Design review: {_mt(res.design)}", "",
+               f"> **Caution.** {_mt(CAUTION)}", "")
+        if res.path:
+            self.w(f"Design file: {_code(res.path)}", "")
+        desc = getattr(r.design, "description", None)
+        if desc:
+            self.w(_mt(desc), "")
+        self.w(f"**Overall: {_MARK[res.status]}** — the design {_STATUS_WORD[res.status]}: "
+               f"{counts['pass']} checks pass, {counts['warn']} warn, {counts['fail']} fail "
+               f"(warning below {res.warn_margin:.0%} margin).", "")
+        self.w("## Summary", "")
+        rows = []
+        for b in res.buses:
+            c = _bus_counts(b)
+            rows.append([_m(b.id), _m(b.protocol), f"**{_MARK[b.status]}**", str(c["pass"]),
+                         str(c["warn"]), str(c["fail"])])
+        self.w(*_table(["Bus", "Protocol", "Status", "Pass", "Warn", "Fail"], rows))
+        for n in res.notes:
+            self.w(f"- {_mt(n)}")
+        for b in res.buses:
+            self.bus(b)
+        if r.mc is not None:
+            self.monte_carlo()
+        self.parts()
+        self.changes()
+        self.w("---", "", f"Made by pinlib {__version__}. {_mt(CAUTION)}", "")
+        return "\n".join(self.out), self.files
+
+    def bus(self, b: BusResult):
+        design_bus = next((x for x in self.r.design.buses if x.id == b.id), None)
+        self.w(f"## Bus {_mt(b.id)} ({b.protocol}): {_MARK[b.status]}", "")
+        if design_bus is not None and design_bus.title:
+            self.w(f"*{_mt(design_bus.title)}*", "")
+        for head, _, grp, place in _groups(b):
+            if head is None:
+                self.group(grp, place, "###")
+                continue
+            self.w(f"### {_mt(head)}: {_MARK[grp.status]}", "")
+            self.group(grp, place, "####")
+
+    def group(self, g: Group, place, h: str):
+        if g.figures:
+            self.w(f"{h} Figures", "")
+            self.w(*_table(["Figure", "Value"],
+                           [[f"`{name}`", _m(_value(f.value, f.unit))]
+                            for name, f in g.figures.items()]))
+        if g.checks:
+            self.w(f"{h} Checks", "")
+            rows = []
+            for c in g.checks:
+                value, limit = _check_cells(c)
+                rows.append([f"**{_MARK[c.status]}**", f"`{c.id}`", _m(c.subject or ""),
+                             _m(value), _m(limit), _m(_margin(c)), _m(_message(c)),
+                             _m(c.source)])
+            self.w(*_table(["Status", "Check", "Subject", "Value", "Limit", "Margin",
+                            "Finding", "Source of the limit"], rows))
+        charts = self.r.charts.get(place, [])
+        if charts:
+            self.w(f"{h} Charts", "")
+            for chart in charts:
+                self.chart(chart)
+        if g.notes:
+            self.w(f"{h} Notes", "", *[f"- {_mt(n)}" for n in g.notes], "")
+
+    def chart(self, chart: ReviewChart):
+        if chart.svg is None:
+            text = M.CHART_NOT_DRAWN_WITH_TITLE.format(title=chart.title, error=chart.error)
+            self.w(f"*{_mt(text)}*", "")
+            return
+        alt = chart.title.replace("[", "(").replace("]", ")")
+        if self.dir is None:
+            data = base64.b64encode(chart.svg.encode("utf-8")).decode("ascii")
+            target = f"data:image/svg+xml;base64,{data}"
+        else:
+            target = f"{self.dir}/{chart.key}.svg"
+            self.files[target] = '<?xml version="1.0" encoding="UTF-8"?>\n' + chart.svg + "\n"
+        self.w(f"![{_mt(alt)}]({target})", "", f"*{_mt(chart.title)}.* {_mt(chart.caption)}",
+               "")
+
+    def monte_carlo(self):
+        self.w("## Monte Carlo", "")
+        for line in _mc_summary(self.r.mc):
+            self.w(_mt(line), "")
+        if self.r.mc_entries:
+            self.w(*_table(list(_MC_HEAD), [[_m(c) for c in _mc_cells(r)]
+                                            for r in self.r.mc_entries]))
+        for chart in self.r.mc_charts:
+            self.chart(chart)
+
+    def parts(self):
+        from pinlib.studies.compare import value_label
+
+        self.w("## Parts and the provenance of their values", "",
+               "Every value as the library resolved it: its basis, its source, and the part "
+               "file that set it (this part, or a class it inherits from). A basis marked *file "
+               "provenance* is not stated on the value itself: it is the provenance of the part "
+               "file that set it.", "")
+        for ref, p in self.r.parts.items():
+            self.w(f"### {_mt(_part_heading(ref, p))}", "")
+            for k, v in _part_facts(p):
+                self.w(f"- {k}: {_mt(v)}")
+            self.w("")
+            rows = [[_code(value_label(key)), _m(_part_value(e)), _m(_typ(e)), _m(_basis(e)),
+                     _m(e.get("source", "—")), _m(_origin(e, p.get("part", "")))]
+                    for key, e in (p.get("values") or {}).items()]
+            self.w(*_table(["Value", "Resolved", "Typical", "Basis", "Source", "Set in"],
+                           rows))
+
+    def changes(self):
+        cl = self.r.changes
+        self.w("## Changes against the snapshot", "")
+        if cl is None:
+            path = getattr(self.r.design, "path", None)
+            self.w(_with_code(M.NO_SNAPSHOT_TO_COMPARE, design=str(path) if path else "DESIGN"),
+                   "")
+            return
+        self.w(*_fenced(cl.format_text().rstrip("\n")), "")

@@ -1,0 +1,158 @@
+"""The Monte Carlo section of a design review: one row per sampled check (from a
+:class:`pinlib.studies.whatif.McResult` or the plain protocol of the package notes), the
+run's summary sentences and the histograms of the checks with the lowest pass fractions."""
+
+from __future__ import annotations
+
+from pinlib.present.review.draw import _draw
+
+
+def _get(obj, name, default=None):
+    if isinstance(obj, dict):
+        return obj.get(name, default)
+    return getattr(obj, name, default)
+
+
+def _mc_entries(mc) -> list:
+    items = _get(mc, "checks", None)
+    if items is None:
+        items = mc
+    if isinstance(items, dict):
+        items = list(items.values())
+    return list(items or [])
+
+
+def _mc_rows(mc) -> list[dict]:
+    """One row per sampled check, from a :class:`pinlib.studies.whatif.McResult` (each check's
+    per-board relative margins: a board passes when its margin is not negative) or from
+    entries of the plain protocol in the package notes (samples of the checked value and
+    its limit)."""
+    import numpy as np
+
+    rows = []
+    for entry in _mc_entries(mc):
+        passes = _get(entry, "passes")
+        if passes is not None and hasattr(passes, "fraction"):  # pinlib.studies.whatif.McCheck
+            margins = _get(entry, "margins")
+            samples = None if margins is None else np.asarray(margins, dtype=float)
+            lowest = entry.margin_quantiles((0.0,))[0] if hasattr(entry, "margin_quantiles") \
+                else None
+            rows.append({
+                "where": _get(entry, "name") or _get(entry, "id", "check"),
+                "samples": samples, "limit": 0.0, "unit": "%", "kind": "min",
+                "label": f"Margin of {_get(entry, 'id', 'the check')}, relative to its limit",
+                "fraction": float(passes.fraction), "ci": tuple(passes.interval),
+                "count": f"{passes.passes}/{passes.n}",
+                "varies": bool(_get(entry, "varies", True)),
+                "failures": passes.passes < passes.n, "lowest": lowest,
+                "sensitivity": list(_get(entry, "sensitivity", []) or [])[:3],
+                "source": _get(entry, "source", "") or "",
+                # a long run keeps the margins of its first boards only, and counts
+                # every board's in bins
+                "of": None if samples is None or samples.size >= passes.n else passes.n,
+                "binned": None if samples is None or samples.size >= passes.n
+                or _get(entry, "histogram") is None else entry.histogram.bins()})
+            continue
+        samples = _get(entry, "samples")
+        if samples is None:
+            continue
+        samples = np.asarray(samples, dtype=float)
+        finite = samples[np.isfinite(samples)]
+        frac = _get(entry, "pass_fraction")
+        where = " ".join(str(x) for x in (_get(entry, "path", ""), _get(entry, "id", "check"),
+                                          _get(entry, "subject", "")) if x)
+        rows.append({
+            "where": where, "samples": samples, "limit": _get(entry, "limit"),
+            "unit": _get(entry, "unit", "") or "", "kind": _get(entry, "kind", "max") or "max",
+            "label": _get(entry, "label") or _get(entry, "id", "check"),
+            "fraction": None if frac is None else float(frac), "ci": _get(entry, "ci"),
+            "count": "", "varies": bool(finite.size and finite.max() > finite.min()),
+            "failures": frac is not None and float(frac) < 1.0, "lowest": None,
+            "sensitivity": [], "source": _get(entry, "source", "") or ""})
+    return rows
+
+
+#: At most this many Monte Carlo histograms: the checks with the lowest pass fractions
+#: and margins (every sampled check that varies is in the table).
+MC_CHARTS = 12
+
+
+def _mc_charts(mc, keys) -> tuple[list, list]:
+    from pinlib.present import charts as ch
+
+    rows = _mc_rows(mc)
+    shown = [r for r in rows if r["varies"] or r["failures"]]
+
+    def order(r):
+        frac = r["fraction"] if r["fraction"] is not None else 1.0
+        low = r["lowest"] if r["lowest"] is not None else float("inf")
+        return (frac, low)
+
+    drawn = sorted((r for r in shown if r["samples"] is not None and r["varies"]),
+                   key=order)[:MC_CHARTS]
+    out = []
+    for r in drawn:
+        sub = None
+        if r["fraction"] is not None:
+            sub = f"pass fraction {r['fraction']:.2%}"
+            if r["ci"] is not None:
+                sub += f" ({float(r['ci'][0]):.2%} to {float(r['ci'][1]):.2%})"
+        title = f"Monte Carlo: {r['where']}"
+        limit = "margin 0 (the limit itself)" if r["unit"] == "%" and r["limit"] == 0.0 \
+            else "the check's limit"
+        boards = ("every sampled board" if not r.get("of") or r.get("binned") is not None
+                  else f"the first {r['samples'].size:,} of the {r['of']:,} sampled boards")
+        caption = (f"{r['label']} on {boards}. Bars in the pass colour hold boards "
+                   f"that pass, in the fail colour boards that fail; the dashed line is "
+                   f"{limit}.")
+        out.append(_draw(keys("mc", r["where"]), "histogram", title, caption,
+                         lambda r=r, t=title, sub=sub: ch.histogram(
+                             r["samples"], limit=r["limit"], unit=r["unit"], label=r["label"],
+                             limit_kind=r["kind"], title=t, subtitle=sub,
+                             binned=r.get("binned"))))
+    return out, shown
+
+
+def _mc_summary(mc) -> list[str]:
+    """Sentences about a Monte Carlo run: size, draws, seed, yields, notes."""
+    out = []
+    n, seed = _get(mc, "n"), _get(mc, "seed")
+    bits = []
+    if n is not None:
+        bits.append(f"{int(n)} sampled boards")
+    dist = _get(mc, "distribution")
+    if dist:
+        bits.append(f"{dist} within each tolerance" + (" (tolerance = 3σ)" if dist == "normal"
+                                                        else ""))
+    if seed is not None:
+        bits.append(f"seed {seed}")
+    if bits:
+        out.append(", ".join(bits) + ".")
+    conf, method = _get(mc, "confidence"), _get(mc, "method")
+    if conf is not None and method:
+        out.append(f"Pass fractions with {float(conf):.0%} {method}s.")
+    board = _get(mc, "board")
+    if board is not None and hasattr(board, "fraction"):
+        out.append(f"Every sampled bus passes on {_yield(board)} of the boards.")
+    for bus, y in (_get(mc, "buses") or {}).items():
+        if hasattr(y, "fraction"):
+            out.append(f"Bus {bus}: every check passes on {_yield(y)}.")
+    out += [str(x) for x in (_get(mc, "notes") or [])]
+    return out
+
+
+def _yield(y) -> str:
+    lo, hi = y.interval
+    return f"{y.fraction:.2%} ({lo:.2%} to {hi:.2%}, {y.passes}/{y.n})"
+
+
+def _mc_cells(row: dict) -> list[str]:
+    frac = "" if row["fraction"] is None else f"{row['fraction']:.2%}"
+    ci = "" if row["ci"] is None else f"{float(row['ci'][0]):.2%} to {float(row['ci'][1]):.2%}"
+    low = "" if row["lowest"] is None else f"{row['lowest'] * 100:+.1f} %"
+    sens = ", ".join(f"{n} {c:+.2f}" for n, c in row["sensitivity"]) or "—"
+    return [row["where"], frac, ci, low, sens, row["source"]]
+
+
+_MC_HEAD = ("Check", "Pass fraction", "Confidence interval", "Lowest margin",
+            "Most sensitive to (standardized coefficient)", "Source of the limit")

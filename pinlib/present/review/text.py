@@ -1,0 +1,69 @@
+"""The words and counts both pages of a design review share: status marks, a check's
+cells, the groups of a bus in report order, the sentence for a design with no snapshot."""
+
+from __future__ import annotations
+
+from pinlib.core import messages as M
+from pinlib.model.result import BusResult, Check, DesignResult, margin_text
+from pinlib.present.report import format_value
+from pinlib.present.review.draw import _slug
+
+_MARK = {"pass": "PASS", "warn": "WARN", "fail": "FAIL"}
+_STATUS_WORD = {"pass": "passes", "warn": "passes with a margin under the warning threshold",
+                "fail": "fails"}
+
+
+def _margin(c: Check) -> str:
+    return margin_text(c)
+
+
+def _value(value, unit: str) -> str:
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    return format_value(value, unit)
+
+
+def _check_cells(c: Check) -> tuple[str, str]:
+    """A check's value and limit as text; a yes/no check shows its answer and no limit."""
+    value = ("yes" if c.value else "no") if isinstance(c.value, bool) else _value(c.value,
+                                                                                   c.unit)
+    limit = "" if isinstance(c.limit, bool) else _value(c.limit, c.unit)
+    return value, limit
+
+
+def _message(c: Check) -> str:
+    text = c.message
+    if c.fix and c.fix not in text:
+        text += f"; fix: {c.fix}"
+    return text
+
+
+def _counts(result: DesignResult) -> dict:
+    counts = {s: 0 for s in ("pass", "warn", "fail")}
+    for b in result.buses:
+        for _, _, c in b.all_checks():
+            counts[c.status] += 1
+    return counts
+
+
+def _bus_counts(b: BusResult) -> dict:
+    counts = {s: 0 for s in ("pass", "warn", "fail")}
+    for _, _, c in b.all_checks():
+        counts[c.status] += 1
+    return counts
+
+
+def _groups(b: BusResult):
+    """(heading, anchor suffix, group, chart place) of a bus, in report order."""
+    yield None, "", b, ("bus", b.id)
+    for s in b.segments:
+        yield f"Segment {s.id}", f"-seg-{_slug(s.id)}", s, ("segment", b.id, s.id)
+    for ln in b.lines:
+        yield f"Line {ln.signal.upper()}", f"-line-{_slug(ln.signal)}", ln, \
+            ("line", b.id, ln.signal)
+
+
+def _no_snapshot_text(design) -> str:
+    path = getattr(design, "path", None)
+    shown = str(path) if path else "DESIGN"
+    return M.NO_SNAPSHOT_TO_COMPARE.format(design=shown)

@@ -1,0 +1,417 @@
+"""Change lists: the checks whose status changed, the figures that moved beyond the
+threshold, and the part values behind the change, between two snapshots or against the
+design's saved one."""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from typing import Any
+
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
+from pinlib.core.quantity import Threshold, format_si, format_threshold
+from pinlib.studies.compare.figures import (
+    DEFAULT_THRESHOLD,
+    _checks,
+    _is_number,
+    figure_rows,
+    format_change,
+    format_figure,
+)
+from pinlib.studies.compare.snapshots import load_snapshot, snapshot
+from pinlib.studies.snapshotfile import snapshot_path
+
+#: Format tag of a change list's JSON form.
+CHANGES_FORMAT = "pinlib.changes/1"
+
+_ARROW = "→"
+
+
+@dataclass
+class StatusChange:
+    """A check whose status changed (``old`` or ``new`` is None for a check that appeared
+    or disappeared)."""
+
+    path: str
+    check: str
+    subject: str | None
+    old: str | None
+    new: str | None
+    unit: str = ""
+    old_value: Any = None
+    new_value: Any = None
+    old_limit: Any = None
+    new_limit: Any = None
+    old_margin: float | None = None
+    new_margin: float | None = None
+    source: str = ""
+    message: str = ""
+    old_subject: str | None = None  # when the worst case moved to another device
+
+    def format(self) -> str:
+        where = f"{self.path} {self.check}" + (f" {self.subject}" if self.subject else "")
+        if self.old_subject:
+            where += f" (was {self.old_subject})"
+        old = self.old or "(absent)"
+        new = self.new or "(absent)"
+        text = f"{where}: {old} {_ARROW} {new}"
+        vals = []
+        if self.old is not None and self.new is not None:
+            vals.append(f"{format_figure(self.old_value, self.unit)} {_ARROW} "
+                        f"{format_figure(self.new_value, self.unit)}")
+        elif self.new is not None:
+            vals.append(format_figure(self.new_value, self.unit))
+        else:
+            vals.append(format_figure(self.old_value, self.unit))
+        limit = self.new_limit if self.new is not None else self.old_limit
+        if limit is not None and not isinstance(limit, bool):
+            if self.old is not None and self.new is not None and self.old_limit != self.new_limit:
+                vals.append(f"limit {format_figure(self.old_limit, self.unit)} {_ARROW} "
+                            f"{format_figure(self.new_limit, self.unit)}")
+            else:
+                vals.append(f"limit {format_figure(limit, self.unit)}")
+        text += " (" + ", ".join(vals) + ")"
+        if self.source:
+            text += f"; source: {self.source}"
+        return text
+
+    def to_json(self) -> dict:
+        return {"path": self.path, "check": self.check, "subject": self.subject,
+                "old": self.old, "new": self.new, "unit": self.unit,
+                "old_value": self.old_value, "new_value": self.new_value,
+                "old_limit": self.old_limit, "new_limit": self.new_limit,
+                "old_margin": self.old_margin, "new_margin": self.new_margin,
+                "source": self.source, "message": self.message,
+                "old_subject": self.old_subject}
+
+
+@dataclass
+class FigureChange:
+    """A figure that moved beyond the threshold, changed kind, appeared or disappeared."""
+
+    path: str
+    name: str
+    unit: str
+    old: Any
+    new: Any
+    change: float | None
+    kind: str  # "moved", "changed", "added", "removed"
+
+    def format(self) -> str:
+        return (f"{self.path} {self.name}: {format_figure(self.old, self.unit)} {_ARROW} "
+                f"{format_figure(self.new, self.unit)} {format_change(self.change)}").rstrip()
+
+    def to_json(self) -> dict:
+        return {"path": self.path, "name": self.name, "unit": self.unit, "old": self.old,
+                "new": self.new,
+                "change": None if self.change is None or math.isinf(self.change)
+                else self.change, "kind": self.kind}
+
+
+def value_label(key: str) -> str:
+    """A value's dotted key as an engineer reads it: ``pins.sda.c_in`` -> ``SDA c_in``,
+    ``sides.b.pins.scl.v_il`` -> ``side b SCL v_il``, ``timing.t_valid`` -> ``t_valid``."""
+    parts = key.split(".")
+    out = []
+    i = 0
+    while i < len(parts):
+        p = parts[i]
+        if p == "sides" and i + 1 < len(parts):
+            out.append(f"side {parts[i + 1]}")
+            i += 2
+            continue
+        if p == "pins" and i + 1 < len(parts):
+            out.append(parts[i + 1].upper())
+            i += 2
+            continue
+        if p == "timing" and i + 1 < len(parts):
+            i += 1
+            continue
+        out.append(p)
+        i += 1
+    return " ".join(out)
+
+
+def _show_value(entry: dict | None) -> str:
+    if entry is None:
+        return "(none)"
+    if "scale" in entry:
+        th = Threshold(entry["scale"], entry["offset"])
+        shown = entry.get("text") or format_threshold(th)
+        if th.relative and entry.get("value") is not None:
+            shown += f" ({format_si(entry['value'], 'V')} at {format_si(entry['vdd'], 'V')})"
+        return shown
+    v = entry.get("value")
+    if isinstance(v, (bool, str)) or v is None:
+        return format_figure(v, "")
+    return format_si(v, entry.get("unit", ""))
+
+
+def _same_value(a: dict | None, b: dict | None) -> bool:
+    if a is None or b is None:
+        return a is b
+    if "scale" in a or "scale" in b:
+        return (math.isclose(a.get("scale", 0.0), b.get("scale", 0.0), rel_tol=1e-12,
+                             abs_tol=1e-15)
+                and math.isclose(a.get("offset", 0.0), b.get("offset", 0.0), rel_tol=1e-12,
+                                 abs_tol=1e-15))
+    va, vb = a.get("value"), b.get("value")
+    if _is_number(va) and _is_number(vb):
+        return math.isclose(va, vb, rel_tol=1e-12, abs_tol=0.0)
+    return va == vb and a.get("unit") == b.get("unit")
+
+
+@dataclass
+class ValueChange:
+    """One part value that differs between the two snapshots."""
+
+    key: str
+    old: dict | None
+    new: dict | None
+
+    @property
+    def label(self) -> str:
+        return value_label(self.key)
+
+    def format(self, ref: str, part_id: str | None = None) -> str:
+        """``U4 SDA c_in 8 pF → 80 pF, source: … [estimate]``; the part file that set
+        the value is named when it is not ``part_id`` itself (an inherited value)."""
+        text = f"{ref} {self.label} {_show_value(self.old)} {_ARROW} {_show_value(self.new)}"
+        shown = self.new if self.new is not None else self.old
+        bits = []
+        basis = f" [{shown['basis']}]" if shown.get("basis") else ""
+        if shown.get("source"):
+            bits.append(f"source: {shown['source']}{basis}")
+        elif basis:
+            bits.append(f"basis: {shown['basis']}")
+        if shown.get("origin") and shown["origin"] != part_id:
+            bits.append(f"set in {shown['origin']}")
+        return text + (", " + ", ".join(bits) if bits else "")
+
+    def to_json(self) -> dict:
+        return {"key": self.key, "label": self.label, "old": self.old, "new": self.new}
+
+
+@dataclass
+class PartChange:
+    """A device whose part changed, or whose part's resolved values differ."""
+
+    ref: str
+    old_part: str | None
+    new_part: str | None
+    buses: list[str] = field(default_factory=list)
+    old_file: str | None = None
+    new_file: str | None = None
+    values: list[ValueChange] = field(default_factory=list)
+
+    def lines(self) -> list[str]:
+        head = f"{self.ref}"
+        if self.old_part != self.new_part:
+            head += f" part {self.old_part or '(absent)'} {_ARROW} {self.new_part or '(absent)'}"
+            if self.new_file:
+                head += f" ({self.new_file})"
+        else:
+            head += f" part {self.new_part}: values differ"
+        if self.buses:
+            head += f"; on {', '.join(self.buses)}"
+        shown_part = self.new_part if self.new_part is not None else self.old_part
+        return [head] + ["  " + v.format(self.ref, shown_part) for v in self.values]
+
+    def to_json(self) -> dict:
+        return {"ref": self.ref, "old_part": self.old_part, "new_part": self.new_part,
+                "buses": list(self.buses), "old_file": self.old_file,
+                "new_file": self.new_file, "values": [v.to_json() for v in self.values]}
+
+
+@dataclass
+class ChangeList:
+    """What changed between two snapshots (see :func:`compare`)."""
+
+    threshold: float
+    old_status: str | None = None
+    new_status: str | None = None
+    status_changes: list[StatusChange] = field(default_factory=list)
+    figure_changes: list[FigureChange] = field(default_factory=list)
+    part_changes: list[PartChange] = field(default_factory=list)
+    notes: list[str] = field(default_factory=list)
+    old_created: str | None = None
+    new_created: str | None = None
+
+    @property
+    def empty(self) -> bool:
+        """True when no check changed status, no figure moved and no part value differs."""
+        return not (self.status_changes or self.figure_changes or self.part_changes)
+
+    def to_json(self) -> dict:
+        return {
+            "format": CHANGES_FORMAT,
+            "threshold": self.threshold,
+            "status": {"old": self.old_status, "new": self.new_status},
+            "old_created": self.old_created,
+            "new_created": self.new_created,
+            "empty": self.empty,
+            "status_changes": [c.to_json() for c in self.status_changes],
+            "figure_changes": [c.to_json() for c in self.figure_changes],
+            "part_changes": [c.to_json() for c in self.part_changes],
+            "notes": list(self.notes),
+        }
+
+    def format_text(self) -> str:
+        """The change list as plain text, one item a line."""
+        pct = f"{self.threshold * 100:g} %"
+        when = f" saved {self.old_created}" if self.old_created else ""
+        out = [f"Changes against the snapshot{when}: status {self.old_status or '—'} "
+               f"{_ARROW} {self.new_status or '—'}"]
+        if self.empty:
+            out.append(f"  no check changed status, no figure moved more than {pct}, "
+                       "no part value differs")
+        if self.status_changes:
+            out.append("Checks whose status changed:")
+            out += ["  " + c.format() for c in self.status_changes]
+        if self.figure_changes:
+            out.append(f"Figures that moved more than {pct}:")
+            out += ["  " + c.format() for c in self.figure_changes]
+        if self.part_changes:
+            out.append("Part values behind the change:")
+            for pc in self.part_changes:
+                out += ["  " + line for line in pc.lines()]
+        out += [f"Note: {n}" for n in self.notes]
+        return "\n".join(out) + "\n"
+
+
+def _paired_checks(old_c: dict, new_c: dict) -> list[tuple[dict | None, dict | None]]:
+    """Match the checks of two results.
+
+    A check is matched by its group, id, subject and order first.  The checks left over
+    on both sides with the same group and id are then paired in order: an engine names
+    the worst receiver or driver as a check's subject, so when a substitution moves
+    the worst case to another device the check is the same one with a new subject.
+    Whatever is still left appeared or disappeared.
+    """
+    pairs: list[tuple[dict | None, dict | None]] = []
+    left_old = {k: v for k, v in old_c.items() if k not in new_c}
+    pending: dict[tuple, list] = {}
+    for k in left_old:
+        pending.setdefault(k[:2], []).append(k)
+    for k in new_c:
+        if k in old_c:
+            pairs.append((dict(old_c[k], _path=k[0]), dict(new_c[k], _path=k[0])))
+        elif pending.get(k[:2]):
+            ko = pending[k[:2]].pop(0)
+            del left_old[ko]
+            pairs.append((dict(old_c[ko], _path=ko[0]), dict(new_c[k], _path=k[0])))
+        else:
+            pairs.append((None, dict(new_c[k], _path=k[0])))
+    pairs += [(dict(old_c[k], _path=k[0]), None) for k in left_old]
+    return pairs
+
+
+def compare(old_snapshot: dict, new_snapshot: dict, *, threshold: float = DEFAULT_THRESHOLD
+            ) -> ChangeList:
+    """Compare two snapshots (or two plain results).
+
+    Parameters
+    ----------
+    old_snapshot, new_snapshot : dict
+        Snapshots from :func:`snapshot` (plain result JSON works too; then no part
+        values can be compared).
+    threshold : float
+        A figure is listed when it moves by more than this fraction of its old value
+        (keyword-only; 0.05 by default). [1]
+
+    Returns
+    -------
+    ChangeList
+        Checks whose status changed (and checks that appeared or disappeared), figures
+        that moved beyond ``threshold`` (and yes/no or text figures that differ, and
+        figures that appeared or disappeared), and for each device whose part id or
+        resolved values differ, the values that differ with their source.
+    """
+    threshold = float(threshold)
+    if not threshold >= 0:
+        raise InputError(M.NEGATIVE_THRESHOLD, field="threshold", value=threshold,
+                         expected="zero or more")
+    cl = ChangeList(threshold, old_snapshot.get("status"), new_snapshot.get("status"),
+                    old_created=old_snapshot.get("created"),
+                    new_created=new_snapshot.get("created"))
+    if old_snapshot.get("design") != new_snapshot.get("design"):
+        cl.notes.append(f"the snapshot is of design {old_snapshot.get('design')!r}, this is "
+                        f"{new_snapshot.get('design')!r}")
+
+    for o, n in _paired_checks(_checks(old_snapshot), _checks(new_snapshot)):
+        os_, ns_ = (o or {}).get("status"), (n or {}).get("status")
+        if os_ == ns_:
+            continue
+        ref = n or o
+        old_subject = (o or {}).get("subject")
+        cl.status_changes.append(StatusChange(
+            ref["_path"], ref.get("id"), ref.get("subject"), os_, ns_, ref.get("unit", ""),
+            (o or {}).get("value"), (n or {}).get("value"),
+            (o or {}).get("limit"), (n or {}).get("limit"),
+            (o or {}).get("margin"), (n or {}).get("margin"),
+            ref.get("source", ""), ref.get("message", ""),
+            old_subject if o and n and old_subject != ref.get("subject") else None))
+
+    for row in figure_rows(old_snapshot, new_snapshot, threshold=threshold):
+        if row.moved:
+            cl.figure_changes.append(FigureChange(row.path, row.name, row.unit, row.old,
+                                                  row.new, row.change, row.kind))
+
+    old_p, new_p = old_snapshot.get("parts"), new_snapshot.get("parts")
+    if old_p is None or new_p is None:
+        if (old_p is None) != (new_p is None):
+            cl.notes.append("one side is a plain result without part data: part values "
+                            "are not compared")
+    else:
+        for ref in list(new_p) + [r for r in old_p if r not in new_p]:
+            o, n = old_p.get(ref), new_p.get(ref)
+            ov, nv = (o or {}).get("values", {}), (n or {}).get("values", {})
+            values = [ValueChange(k, ov.get(k), nv.get(k))
+                      for k in list(nv) + [k for k in ov if k not in nv]
+                      if not _same_value(ov.get(k), nv.get(k))]
+            old_id, new_id = (o or {}).get("part"), (n or {}).get("part")
+            if old_id == new_id and not values:
+                continue
+            cl.part_changes.append(PartChange(
+                ref, old_id, new_id, list((n or o).get("buses", [])),
+                (o or {}).get("file"), (n or {}).get("file"), values))
+        ol, nl = old_snapshot.get("library") or {}, new_snapshot.get("library") or {}
+        if ol.get("folders") != nl.get("folders"):
+            cl.notes.append("library folders differ: "
+                            f"{ol.get('folders')} {_ARROW} {nl.get('folders')}")
+        if ol.get("overrides") != nl.get("overrides"):
+            cl.notes.append("built-in parts overridden by team parts differ: "
+                            f"{sorted(ol.get('overrides') or {})} {_ARROW} "
+                            f"{sorted(nl.get('overrides') or {})}")
+    return cl
+
+
+def compare_with_snapshot(design, result, threshold: float = DEFAULT_THRESHOLD, *,
+                          damaged: list | None = None):
+    """Compare a fresh result with the design's saved snapshot.
+
+    Parameters
+    ----------
+    damaged : list, optional
+        Given, a snapshot that cannot be read or is damaged (the InputError of
+        :func:`load_snapshot`) is appended to it and ignored: None is returned, as for
+        no snapshot.  Not given, that error is raised.
+
+    Returns
+    -------
+    ChangeList or None
+        None when the design has no snapshot (or was not loaded from a file).
+    """
+    if getattr(design, "path", None) is None:
+        return None
+    try:
+        old = load_snapshot(snapshot_path(design))
+    except InputError as exc:
+        if damaged is None:
+            raise
+        damaged.append(exc)
+        return None
+    if old is None:
+        return None
+    return compare(old, snapshot(design, result), threshold=threshold)

@@ -1,0 +1,160 @@
+"""Two results side by side: their checks and figures keyed by place, the relative change
+of each figure against a threshold, and figures and changes as text."""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import Any
+
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
+from pinlib.core.quantity import format_si, parse_ratio
+
+#: A figure that moves by more than this fraction of its old value is listed (5 %).
+DEFAULT_THRESHOLD = 0.05
+
+
+def parse_change_threshold(text) -> float:
+    """A change threshold as users write it: ``"5 %"`` or ``"5%"`` -> 0.05.
+
+    Raises
+    ------
+    UnitError
+        For a bare number or another unit.
+    InputError
+        For a negative threshold.
+    """
+    value = parse_ratio(text, field="threshold")
+    if value < 0:
+        raise InputError(M.NEGATIVE_THRESHOLD, field="threshold", value=text,
+                         expected="zero or more, e.g. '5 %'")
+    return value
+
+
+def _groups(result: dict):
+    """Every group of a result JSON with its path: bus, segment (``bus/seg``), line
+    (``bus/signal``)."""
+    for bus in result.get("buses", ()):
+        bid = bus.get("id", "?")
+        yield bid, bus
+        for seg in bus.get("segments", ()) or ():
+            yield f"{bid}/{seg.get('id', '?')}", seg
+        for line in bus.get("lines", ()) or ():
+            yield f"{bid}/{line.get('signal', '?')}", line
+
+
+def _checks(result: dict) -> dict[tuple, dict]:
+    """Checks keyed by (path, id, subject, occurrence): a check with the same id and
+    subject twice in one group (a lower and an upper bound) is told apart by order."""
+    out: dict[tuple, dict] = {}
+    for path, grp in _groups(result):
+        seen: dict[tuple, int] = {}
+        for c in grp.get("checks", ()):
+            base = (path, c.get("id"), c.get("subject"))
+            n = seen.get(base, 0)
+            seen[base] = n + 1
+            out[base + (n,)] = c
+    return out
+
+
+def _figures(result: dict) -> dict[tuple, dict]:
+    out: dict[tuple, dict] = {}
+    for path, grp in _groups(result):
+        for name, fig in (grp.get("figures") or {}).items():
+            out[(path, name)] = fig if isinstance(fig, dict) else {"value": fig, "unit": ""}
+    return out
+
+
+def _relative(old, new) -> float | None:
+    """Relative change ``(new - old) / |old|``; inf when a zero becomes non-zero; None
+    when either is not a number."""
+    if not _is_number(old) or not _is_number(new):
+        return None
+    if old == new:
+        return 0.0
+    if old == 0:
+        return math.copysign(math.inf, new)
+    return (new - old) / abs(old)
+
+
+def _is_number(x) -> bool:
+    return isinstance(x, (int, float)) and not isinstance(x, bool) and math.isfinite(x)
+
+
+def format_figure(value, unit: str) -> str:
+    """A figure value as text: SI prefix and unit, ``yes``/``no``, text as is, ``—`` for none."""
+    if value is None:
+        return "—"
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, str):
+        return value
+    if not unit:  # a ratio or a count: no SI prefix ("847 m" reads badly)
+        return f"{value:.4g}"
+    return format_si(value, unit)
+
+
+def format_change(rel: float | None) -> str:
+    """A relative change as text: ``(+12.5 %)``; ``(from zero)``; empty for none."""
+    if rel is None:
+        return ""
+    if math.isinf(rel):
+        return "(from zero)"
+    return f"({rel * 100:+.3g} %)"
+
+
+@dataclass
+class FigureRow:
+    """One figure before and after, for side-by-side tables."""
+
+    path: str
+    name: str
+    unit: str
+    old: Any
+    new: Any
+    change: float | None      # relative, (new - old) / |old|
+    moved: bool               # beyond the threshold, or a value of another kind that differs
+    kind: str                 # "same", "moved", "changed", "added", "removed"
+
+    def to_json(self) -> dict:
+        return {"path": self.path, "name": self.name, "unit": self.unit,
+                "old": self.old, "new": self.new,
+                "change": None if self.change is None or math.isinf(self.change)
+                else self.change, "kind": self.kind}
+
+
+def figure_rows(old_result: dict, new_result: dict, *, threshold: float = DEFAULT_THRESHOLD
+                ) -> list[FigureRow]:
+    """Every figure of two results side by side, in the new result's order (figures only
+    in the old one last), each marked with whether it moved beyond ``threshold``.
+
+    A number moves when ``|new - old| > threshold·|old|`` (any change from zero counts);
+    a yes/no or text figure, or one that became undefined, when it differs.
+    """
+    if threshold < 0:
+        raise InputError(M.NEGATIVE_THRESHOLD, field="threshold", value=threshold,
+                         expected="zero or more")
+    old_f, new_f = _figures(old_result), _figures(new_result)
+    keys = list(new_f) + [k for k in old_f if k not in new_f]
+    rows = []
+    for key in keys:
+        o, n = old_f.get(key), new_f.get(key)
+        unit = (n or o or {}).get("unit", "")
+        ov = o.get("value") if o else None
+        nv = n.get("value") if n else None
+        if o is None:
+            rows.append(FigureRow(*key, unit, None, nv, None, True, "added"))
+            continue
+        if n is None:
+            rows.append(FigureRow(*key, unit, ov, None, None, True, "removed"))
+            continue
+        rel = _relative(ov, nv)
+        if rel is not None:
+            moved = abs(rel) > threshold
+            rows.append(FigureRow(*key, unit, ov, nv, rel, moved, "moved" if moved else "same"))
+        else:
+            differ = ov != nv
+            rows.append(FigureRow(*key, unit, ov, nv, None, differ,
+                                  "changed" if differ else "same"))
+    return rows

@@ -1,0 +1,257 @@
+"""The worst corner of each check: every toleranced parameter at one end or the other
+(every vertex for few parameters, else a screen and single flips; the push-pull
+engine's own search for a push-pull bus), and the parameters that set it."""
+
+from __future__ import annotations
+
+import itertools
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from pinlib.core.progress import progress_bar
+from pinlib.core.protocols import PUSH_PULL_PROTOCOLS
+from pinlib.engines import ppbatch as ppb
+from pinlib.engines import ppworst as ppw
+from pinlib.engines.opendrain import batch as ob
+from pinlib.model.design import Design
+from pinlib.model.result import json_number
+from pinlib.studies.whatif.checknames import _names, _not_sampled
+from pinlib.studies.whatif.mcresult import _fmt_margin
+from pinlib.studies.whatif.tolerances import Parameter, Sampled, _collected, _nominal, parameters
+
+#: Up to this many parameters on a bus, corners tries every vertex (2**k).
+EXHAUSTIVE_LIMIT = 12
+
+
+@dataclass
+class CornerCheck:
+    """The worst corner of one check.
+
+    Attributes
+    ----------
+    name : str
+        As :attr:`McCheck.name`. [1]
+    margin, value, limit : float or None
+        At the worst corner. [1], [unit], [unit]
+    status : str
+        At the worst corner. [1]
+    corner : list of (str, str, float)
+        The parameters that set it: name, end (``"+"`` or ``"−"``) and the margin the
+        check would gain with that parameter at its other end (largest first).  A
+        parameter that moves nothing is left out. [1]
+    """
+
+    name: str
+    bus: str
+    segment: str
+    signal: str | None
+    id: str
+    unit: str
+    source: str
+    margin: float | None
+    value: float | None
+    limit: float | None
+    status: str
+    corner: list
+    nominal_status: str | None = None
+    nominal_margin: float | None = None
+
+    def to_json(self) -> dict:
+        return {"name": self.name, "bus": self.bus, "segment": self.segment,
+                "signal": self.signal, "id": self.id, "unit": self.unit, "source": self.source,
+                "status": self.status, "margin": json_number(self.margin),
+                "value": json_number(self.value), "limit": json_number(self.limit),
+                "corner": [{"parameter": n, "end": e, "gain": json_number(g)} for n, e, g in
+                           self.corner],
+                "worst_case_status": self.nominal_status,
+                "worst_case_margin": json_number(self.nominal_margin)}
+
+
+@dataclass
+class CornersResult:
+    design: str
+    checks: list[CornerCheck]
+    methods: dict[str, str]
+    parameters: dict[str, list[Parameter]]
+    notes: list[str] = field(default_factory=list)
+
+    def find(self, bus: str, check_id: str, signal: str | None = None,
+             segment: str | None = None) -> CornerCheck:
+        for c in self.checks:
+            if c.bus == bus and c.id == check_id and (signal is None or c.signal == signal) \
+                    and (segment is None or c.segment == segment):
+                return c
+        raise KeyError((bus, check_id, signal, segment))
+
+    def to_json(self) -> dict:
+        return {"format": "pinlib.corners/1", "design": self.design,
+                "methods": dict(self.methods),
+                "parameters": {b: [p.to_json() for p in ps] for b, ps in self.parameters.items()},
+                "checks": [c.to_json() for c in self.checks], "notes": list(self.notes)}
+
+    def format_text(self, limit: int | None = 12) -> str:
+        """The corners for people: the ``limit`` lowest margins (None for all)."""
+        lines = ["Corners: every toleranced parameter at one end or the other; the worst corner "
+                 "of each check and the parameters that set it"]
+        for bus, method in self.methods.items():
+            lines.append(f"  bus {bus}: {method}")
+        rows = [c for c in self.checks if c.corner]
+        rows.sort(key=lambda c: -math.inf if c.margin is None or math.isnan(c.margin)
+                  else c.margin)
+        shown = rows[:limit] if limit else rows
+        if shown:
+            lines.append("  lowest margins at their worst corners:")
+            w = max(len(c.name) for c in shown)
+            for c in shown:
+                corner = ", ".join(f"{n} {e}" for n, e, _ in c.corner)
+                lines.append(f"    {c.status:<4}  {c.name:<{w}}  {_fmt_margin(c.margin):>8}  "
+                             f"at {corner}")
+            if len(shown) < len(rows):
+                lines.append(f"    … {len(rows) - len(shown)} more (JSON lists every check)")
+        fixed = len(self.checks) - len(rows)
+        if fixed:
+            lines.append(f"  {fixed} checks depend on no toleranced parameter")
+        for n in self.notes:
+            lines.append(f"  note: {n}")
+        return "\n".join(lines) + "\n"
+
+
+def _key(m):
+    return np.where(np.isnan(m), -np.inf, m)
+
+
+def _margins(bb: ob.BusBatch) -> np.ndarray:
+    """Every check's margin as columns, a yes/no check as 0 (pass) or −inf (fail)."""
+    cols = []
+    for _, c in bb.checks():
+        cols.append(c.margin if c.margin is not None else np.where(c.status == 2, -np.inf, 0.0))
+    return np.stack(cols, axis=1) if cols else np.empty((bb.n, 0))
+
+
+def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
+            progress=None) -> CornersResult:
+    """The worst corner of each check of the design's buses.
+
+    Parameters
+    ----------
+    design : Design
+        A loaded design. [1]
+    exhaustive_limit : int, optional
+        Try all 2**k vertices of an open-drain bus with up to this many parameters;
+        above it, screen each parameter alone at both ends and improve the combined
+        corner one flip at a time.  A push-pull bus takes the engine's own search
+        (:func:`pinlib.engines.ppworst.search`), so that its corners and its checks'
+        statuses agree. [1]
+    progress : bool, callable or None, optional
+        Progress bar over the buses. [1]
+
+    Returns
+    -------
+    CornersResult
+        Per check: the margin at its worst corner and the parameters (at which end)
+        that set it.
+    """
+    nominal = _nominal(design)
+    collected = _collected(design)
+    out, methods, per_bus = [], {}, {}
+    sampled = [b for b in design.buses if b.id in collected or b.protocol in PUSH_PULL_PROTOCOLS]
+    bar = progress_bar(len(sampled), desc="corners", unit="bus", enabled=progress)
+    with bar:
+        for bus in sampled:
+            params = parameters(design, bus=bus.id, collected=collected)
+            per_bus[bus.id] = params
+            k = len(params)
+
+            def run(u, bus=bus, params=params):
+                scen = Sampled(u, params)
+                if bus.protocol in PUSH_PULL_PROTOCOLS:
+                    return ppb.build(bus, design, scen.factors(bus), scen.n,
+                                     nominal=nominal[bus.id])
+                return ob.build(bus, design, scen, collected=collected[bus.id])
+
+            if bus.protocol in PUSH_PULL_PROTOCOLS:
+                # the engine's own search, so a check's corner here and its status in
+                # the engine's result agree
+                worst = ppw.search(k, lambda u, run=run: _key(_margins(run(u))))
+                methods[bus.id] = ppw.method_text(k)
+            elif k <= exhaustive_limit:
+                verts = (np.array(list(itertools.product((-1.0, 1.0), repeat=k))) if k
+                         else np.zeros((1, 0)))
+                bb = run(verts)
+                mg = _key(_margins(bb))
+                best = np.argmin(mg, axis=0)
+                worst = verts[best]                         # (checks, k)
+                methods[bus.id] = (f"all {len(verts)} corners of {k} parameters" if k else
+                                   "no toleranced parameter")
+            else:
+                worst = _screen(run, k)
+                methods[bus.id] = (f"{k} parameters: each screened alone at both ends, then "
+                                   "the combined corner improved one flip at a time")
+            bb_w = run(worst)
+            names = _names(bus, bb_w, nominal[bus.id])
+            checks = [c for _, c in bb_w.checks()]
+            gains = _gains(run, worst, k, len(checks))
+            for j, (nm, c) in enumerate(zip(names, checks, strict=True)):
+                ec = nm["engine"]
+                corner = []
+                for i in np.argsort(-gains[j]) if k else []:
+                    g = gains[j, i]
+                    here = float(_margin(c, j))
+                    if abs(g) > 1e-9 * max(1.0, abs(here) if math.isfinite(here) else 1.0):
+                        corner.append((params[i].name, "+" if worst[j, i] > 0 else "−", float(g)))
+                out.append(CornerCheck(
+                    nm["name"], bus.id, nm["segment"], c.signal, c.id, c.unit,
+                    ec.source if ec is not None else "",
+                    None if c.margin is None else float(c.margin[j]),
+                    None if c.value is None else float(c.value[j]),
+                    None if c.limit is None else float(c.limit[j]),
+                    ob.STATUS[int(c.status[j])], corner,
+                    ec.status if ec is not None else None, ec.margin if ec is not None else None))
+            bar.update(1)
+    return CornersResult(design.title, out, methods, per_bus,
+                         _not_sampled(design, "no corners"))
+
+
+def _margin(c: ob.BatchCheck, j: int):
+    if c.margin is None:
+        return -np.inf if c.status[j] == 2 else 0.0
+    return c.margin[j]
+
+
+def _gains(run, worst: np.ndarray, k: int, m: int) -> np.ndarray:
+    """For each check j and parameter i: the margin of check j with parameter i flipped
+    at check j's worst corner, less the margin there. [1]"""
+    if k == 0 or m == 0:
+        return np.zeros((m, k))
+    base = np.diagonal(_key(_margins(run(worst))))                # (m,)
+    flips = np.repeat(worst, k, axis=0)                           # (m*k, k)
+    idx = np.arange(m * k)
+    flips[idx, idx % k] *= -1.0
+    mg = _key(_margins(run(flips)))                              # (m*k, m)
+    own = mg[idx, idx // k].reshape(m, k)
+    with np.errstate(invalid="ignore"):
+        g = own - base[:, None]
+    return np.where(np.isnan(g), 0.0, g)
+
+
+def _screen(run, k: int) -> np.ndarray:
+    """Worst corners of every check for many parameters: each alone at both ends, then
+    single flips while one lowers the check's margin."""
+    pts = np.zeros((2 * k + 1, k))
+    for i in range(k):
+        pts[2 * i, i], pts[2 * i + 1, i] = -1.0, 1.0
+    mg = _key(_margins(run(pts)))                                 # (2k+1, m)
+    m = mg.shape[1]
+    lower = mg[0:2 * k:2] < mg[1:2 * k:2]                         # (k, m): -1 end is worse
+    worst = np.where(lower.T, -1.0, 1.0)                          # (m, k)
+    for _ in range(2 * k):
+        g = _gains(run, worst, k, m)
+        j_i = np.argmin(g, axis=1)
+        better = g[np.arange(m), j_i] < 0
+        if not better.any():
+            break
+        rows = np.nonzero(better)[0]
+        worst[rows, j_i[rows]] *= -1.0
+    return worst

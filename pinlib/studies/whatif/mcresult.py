@@ -1,0 +1,200 @@
+"""The result of a Monte Carlo run: each check over the drawn boards (:class:`McCheck`)
+and the run (:class:`McResult`), as JSON and as text."""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from pinlib.model.result import json_number
+from pinlib.studies.whatif.tally import MarginHistogram
+from pinlib.studies.whatif.tolerances import Parameter
+from pinlib.studies.whatif.yields import CONFIDENCE, Yield, _pct
+
+
+@dataclass
+class McCheck:
+    """One check over the drawn boards.
+
+    Attributes
+    ----------
+    name : str
+        ``"<bus>[/<segment>] [SDA|SCL] <check id> [<subject>]"``. [1]
+    margins, values : numpy.ndarray
+        The margin and value of each of the first :attr:`sampled` boards (None for a
+        yes/no check). [1], [unit]
+    passes : Yield
+        Boards whose margin is not negative.
+    sensitivity : list of (str, float)
+        Parameters by standardized regression coefficient of the margin (largest
+        first, those of at least :data:`SENSITIVITY_FLOOR`). [1]
+    r2 : float or None
+        How much of the margin's variance the linear fit explains. [1]
+    warns, fails : int or None
+        Boards on which the check warns, fails (of all ``passes.n``). [1]
+    low, high : float or None
+        Lowest and highest finite margin over all boards. [1]
+    worst_board : int or None
+        Index (in drawing order) of the board with the lowest margin. [1]
+    sampled : int or None
+        How many boards :attr:`margins` and :attr:`values` hold: all of them up to
+        :data:`SENSITIVITY_BOARDS`, then the first that many. [1]
+    histogram : MarginHistogram or None
+        The finite margins of every board, counted in fine bins. [1]
+    """
+
+    name: str
+    bus: str
+    segment: str
+    signal: str | None
+    id: str
+    unit: str
+    source: str
+    nominal_status: str | None
+    nominal_margin: float | None
+    passes: Yield
+    margins: np.ndarray | None = None
+    values: np.ndarray | None = None
+    sensitivity: list = field(default_factory=list)
+    r2: float | None = None
+    warns: int | None = None
+    fails: int | None = None
+    low: float | None = None
+    high: float | None = None
+    worst_board: int | None = None
+    sampled: int | None = None
+    histogram: MarginHistogram | None = None
+
+    @property
+    def complete(self) -> bool:
+        """Whether :attr:`margins` holds every board of the run."""
+        return self.sampled is None or self.sampled >= self.passes.n
+
+    @property
+    def varies(self) -> bool:
+        if self.margins is None:
+            return False
+        if not self.complete:
+            return self.low is not None and self.high is not None and self.high > self.low
+        m = self.margins[np.isfinite(self.margins)]
+        return bool(m.size) and bool(m.max() > m.min())
+
+    def margin_quantiles(self, qs=(0.0, 0.01, 0.5)) -> list[float | None]:
+        """Quantiles of the finite margins: of every board when :attr:`margins` holds
+        them all; else the lowest (``q = 0``) of every board, the others of the first
+        :attr:`sampled` boards."""
+        if self.margins is None:
+            return [None] * len(qs)
+        m = self.margins[np.isfinite(self.margins)]
+        if self.complete:
+            return [float(np.quantile(m, q)) if m.size else None for q in qs]
+        return [self.low if q == 0 else float(np.quantile(m, q)) if m.size else None
+                for q in qs]
+
+    def to_json(self) -> dict:
+        q = self.margin_quantiles()
+        return {"name": self.name, "bus": self.bus, "segment": self.segment,
+                "signal": self.signal, "id": self.id, "unit": self.unit, "source": self.source,
+                "nominal_status": self.nominal_status,
+                "nominal_margin": json_number(self.nominal_margin),
+                "pass": self.passes.to_json(), "varies": self.varies,
+                "margin": {"min": json_number(q[0]), "p01": json_number(q[1]),
+                           "median": json_number(q[2])},
+                "sensitivity": [{"parameter": n, "coefficient": c} for n, c in self.sensitivity],
+                "r2": json_number(self.r2)}
+
+
+
+
+@dataclass
+class McResult:
+    """A Monte Carlo run over a design's tolerances (see :func:`monte_carlo`)."""
+
+    design: str
+    n: int
+    seed: int
+    distribution: str
+    parameters: list[Parameter]
+    checks: list[McCheck]
+    buses: dict[str, Yield]
+    board: Yield | None
+    draws: np.ndarray
+    notes: list[str] = field(default_factory=list)
+    confidence: float = CONFIDENCE
+    method: str = "Wilson score interval"
+
+    def check(self, name: str) -> McCheck:
+        for c in self.checks:
+            if c.name == name:
+                return c
+        raise KeyError(name)
+
+    def find(self, bus: str, check_id: str, signal: str | None = None,
+             segment: str | None = None) -> McCheck:
+        """The first check of a bus with this id (and line, segment)."""
+        for c in self.checks:
+            if c.bus == bus and c.id == check_id and (signal is None or c.signal == signal) \
+                    and (segment is None or c.segment == segment):
+                return c
+        raise KeyError((bus, check_id, signal, segment))
+
+    def to_json(self) -> dict:
+        return {
+            "format": "pinlib.montecarlo/1",
+            "design": self.design, "samples": self.n, "seed": self.seed,
+            "distribution": self.distribution, "confidence": self.confidence,
+            "interval": self.method,
+            "parameters": [p.to_json() for p in self.parameters],
+            "board": self.board.to_json() if self.board else None,
+            "buses": {k: v.to_json() for k, v in self.buses.items()},
+            "checks": [c.to_json() for c in self.checks],
+            "notes": list(self.notes),
+        }
+
+    def format_text(self, limit: int | None = 12) -> str:
+        """The run for people: yields, then the checks with the fewest passing boards
+        and lowest margins (``limit`` of them; None for all)."""
+        pct = f"{self.confidence:.0%}"
+        lines = [f"Monte Carlo: {self.n} boards, {self.distribution} within each tolerance"
+                 f"{' (tolerance = 3σ)' if self.distribution == 'normal' else ''}, seed "
+                 f"{self.seed}; pass fractions with {pct} {self.method}s"]
+        if self.parameters:
+            lines.append("  parameters: " + "; ".join(
+                f"{p.name} ±{p.tolerance * 100:.3g} %" for p in self.parameters))
+        else:
+            lines.append("  no toleranced parameter: every board is the nominal one")
+        if self.board is not None:
+            lines.append(f"  all sampled buses pass on {_pct(self.board)}")
+        for bus, y in self.buses.items():
+            lines.append(f"  bus {bus}: {_pct(y)}")
+        rows = [c for c in self.checks if c.varies or c.passes.passes < c.passes.n]
+        rows.sort(key=lambda c: (c.passes.passes, _low(c)))
+        shown = rows[:limit] if limit else rows
+        if shown:
+            lines.append("  checks with the fewest passing boards and the lowest margins (pass "
+                         "fraction, lowest margin, most sensitive to):")
+            w = max(len(c.name) for c in shown)
+            for c in shown:
+                sens = ", ".join(f"{n} {s:+.2f}" for n, s in c.sensitivity[:3]) or "—"
+                lines.append(f"    {c.name:<{w}}  {_pct(c.passes):<34} "
+                             f"min {_fmt_margin(c.margin_quantiles((0.0,))[0]):>8}  {sens}")
+            if len(shown) < len(rows):
+                lines.append(f"    … {len(rows) - len(shown)} more that vary (JSON lists every "
+                             "check)")
+        steady = len(self.checks) - len(rows)
+        if steady:
+            lines.append(f"  {steady} other checks pass on every board with the same margin")
+        for n in self.notes:
+            lines.append(f"  note: {n}")
+        return "\n".join(lines) + "\n"
+
+
+def _low(c: McCheck) -> float:
+    q = c.margin_quantiles((0.0,))[0]
+    return math.inf if q is None else q
+
+
+def _fmt_margin(m) -> str:
+    return "—" if m is None else f"{m * 100:+.1f} %"

@@ -1,0 +1,223 @@
+"""The Monte Carlo run: boards drawn within the design's tolerances in fixed chunks from
+one stream, each chunk evaluated and counted, then the checks and yields assembled."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from pinlib.core import messages as M
+from pinlib.core import worklimits
+from pinlib.core.errors import InputError
+from pinlib.core.progress import progress_bar
+from pinlib.core.protocols import PUSH_PULL_PROTOCOLS
+from pinlib.engines import ppbatch as ppb
+from pinlib.engines import pptable
+from pinlib.engines.opendrain import batch as ob
+from pinlib.model.design import Design
+from pinlib.studies.whatif.checknames import _names, _not_sampled
+from pinlib.studies.whatif.mcresult import McCheck, McResult
+from pinlib.studies.whatif.sensitivity import _sensitivities
+from pinlib.studies.whatif.tally import _Tally
+from pinlib.studies.whatif.tolerances import _FLOOR, Sampled, _collected, _nominal, draw, parameters
+from pinlib.studies.whatif.yields import Yield, wilson_interval
+
+#: Samples evaluated per numpy pass (fixed, so that a seeded run does not depend on
+#: whether a progress bar is shown).
+CHUNK = 25_000
+
+#: A run draws at most this many boards (:mod:`pinlib.core.worklimits` says why).
+MAX_BOARDS = worklimits.MAX_BOARDS
+
+#: Sensitivities are fitted on at most this many boards (the first drawn): the standard
+#: error of a standardized coefficient is then about 1/sqrt(100,000) = 0.003, far below
+#: SENSITIVITY_FLOOR, and a run of millions of boards does not fit them on all.  The
+#: draws, margins and values of these first boards are all a run keeps of each board
+#: (:attr:`McResult.draws`, :attr:`McCheck.margins`); the counts cover every board.
+SENSITIVITY_BOARDS = 100_000
+
+
+def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=None,
+                chunk: int = CHUNK) -> McResult:
+    """Draw ``n`` boards within the design's tolerances and check each.
+
+    Parameters
+    ----------
+    design : Design
+        A loaded design. [1]
+    n : int
+        Boards to draw, at least 1. [1]
+    seed : int, optional
+        Seed of the random generator; the same seed gives the same boards.  Without
+        one a fresh seed is drawn and reported, so the run can be repeated. [1]
+    progress : bool, callable or None, optional
+        Progress bar (see :func:`pinlib.core.progress.progress_bar`). [1]
+    chunk : int, optional
+        Boards per numpy pass. [1]
+
+    Returns
+    -------
+    McResult
+        Per check: the pass fraction with its Wilson interval, the margins, and the
+        parameters the margin is most sensitive to (standardized regression
+        coefficients of the margin on the parameters); per bus and for all sampled
+        buses together: the fraction of boards on which every check passes.
+
+    Notes
+    -----
+    A check passes on a board when its margin is not negative (a warning passes).
+    Each parameter is ``nominal·(1 + tolerance·u)`` with ``u`` uniform on [−1, 1], or
+    normal with σ = 1/3 when ``design.distribution == "normal"`` (then clipped so that
+    no value goes to zero or below).
+    """
+    n = _checked_size(n, chunk)
+    nominal = _nominal(design)
+    collected = _collected(design)
+    params = parameters(design, collected=collected)
+    ss = np.random.SeedSequence(seed)
+    rng = np.random.default_rng(ss)
+    kept = min(n, SENSITIVITY_BOARDS)       # boards whose draws and margins are kept
+    u_kept = np.empty((kept, len(params)))
+    run = _Run(design, nominal, collected, params, kept, progress)
+    run.prepare_tables(n)
+    bar = progress_bar(n, desc="Monte Carlo", unit="board", enabled=progress)
+    with bar:
+        for start in range(0, n, chunk):
+            m = min(chunk, n - start)
+            # one stream for the run, drawn in board order: board i's draws do not
+            # depend on the chunk size
+            u = draw(rng, m, len(params), design.distribution)
+            if start < kept:
+                u_kept[start:start + m] = u[:kept - start]
+            run.add_chunk(u, start, m)
+            del u
+            bar.update(m)
+    checks, buses = _checks_and_yields(run, u_kept, n)
+    board = Yield(run.board_ok, n, wilson_interval(run.board_ok, n)) if run.stores else None
+    return McResult(design.title, n, int(ss.entropy), design.distribution, params, checks, buses,
+                    board, u_kept, _run_notes(run, n))
+
+
+def _checked_size(n, chunk: int) -> int:
+    """The number of boards as an int, refused below 1 or above :data:`MAX_BOARDS`; a
+    chunk below 1 refused."""
+    n = int(n)
+    if n < 1:
+        raise InputError(M.TOO_FEW_SAMPLES, field="monte-carlo", value=n, expected="at least 1")
+    if n > MAX_BOARDS:
+        raise InputError(M.TOO_MANY_SAMPLES, field="monte-carlo", value=f"{n:,} boards",
+                         expected=f"at most {MAX_BOARDS:,} boards",
+                         hint="split the run over several seeds and add the counts")
+    if chunk < 1:
+        raise InputError(M.CHUNK_NOT_POSITIVE, field="chunk", value=chunk)
+    return n
+
+
+class _Run:
+    """What a Monte Carlo run carries from chunk to chunk: each bus's tally, the boards on
+    which every sampled bus passes, the push-pull tables with their notes and the boards
+    the engine evaluated."""
+
+    def __init__(self, design: Design, nominal: dict, collected: dict, params: list,
+                 kept: int, progress):
+        self.design, self.nominal, self.collected = design, nominal, collected
+        self.params, self.kept = params, kept
+        self.stores: dict[str, _Tally] = {}
+        self.board_ok = 0
+        # Push-pull buses: one table per bus for the whole run (pinlib.engines.pptable); a
+        # normal draw is covered to 4σ (4/3 of the tolerance), boards beyond by the engine.
+        self.tables: dict = {}
+        self.span = 4.0 / 3.0 if design.distribution == "normal" else 1.0
+        self.pp_notes: list[str] = []
+        self.engine_boards: dict[str, int] = {}
+        # the tables get a bar of their own; a caller's callback follows the boards only
+        self.table_progress = False if callable(progress) and not isinstance(progress, bool) \
+            else progress
+
+    def prepare_tables(self, n: int) -> None:
+        """Build the table of each push-pull bus that pays for ``n`` boards."""
+        for bus in self.design.buses:
+            if bus.protocol in PUSH_PULL_PROTOCOLS:
+                # whether a table pays is decided once, for all n boards (not per chunk)
+                ppb.prepare_table(bus, self.design, self.nominal[bus.id], self.tables,
+                                  self.span, _FLOOR, n, progress=self.table_progress)
+
+    def add_chunk(self, u: np.ndarray, start: int, m: int) -> None:
+        """Evaluate and count the boards ``start .. start + m``, drawn as ``u``."""
+        scen = Sampled(u, self.params)
+        chunk_ok = None
+        for bus in self.design.buses:
+            bb = self._batch(bus, scen, m)
+            if bb is None:
+                continue
+            st = self.stores.get(bus.id)
+            if st is None:
+                st = self.stores[bus.id] = _Tally(_names(bus, bb, self.nominal[bus.id]), bb,
+                                                  self.kept)
+            ok = st.add(bb, start, m)
+            chunk_ok = ok if chunk_ok is None else chunk_ok & ok
+            del bb
+        if chunk_ok is not None:
+            self.board_ok += int(np.count_nonzero(chunk_ok))
+
+    def _batch(self, bus, scen: Sampled, m: int):
+        """One chunk of a bus evaluated as a batch; None for a bus the run does not sample."""
+        if bus.protocol in PUSH_PULL_PROTOCOLS:
+            bb = ppb.build(bus, self.design, scen.factors(bus), m, nominal=self.nominal[bus.id],
+                           tables=self.tables, span=self.span, floor=_FLOOR,
+                           progress=self.table_progress)
+            for note in bb.notes:
+                if note not in self.pp_notes:
+                    self.pp_notes.append(note)
+            self.engine_boards[bus.id] = self.engine_boards.get(bus.id, 0) + bb.engine_boards
+            return bb
+        if bus.id in self.collected:
+            return ob.build(bus, self.design, scen, collected=self.collected[bus.id])
+        return None
+
+
+def _checks_and_yields(run: _Run, u_kept: np.ndarray, n: int) -> tuple[list, dict]:
+    """Every sampled check of the run, with its sensitivities, and each bus's yield."""
+    checks, buses = [], {}
+    for bus in run.design.buses:
+        st = run.stores.get(bus.id)
+        if st is None:
+            continue
+        fits = _sensitivities(u_kept, st.margin, run.params)
+        checks += _bus_checks(bus.id, st, fits, n, run.kept)
+        buses[bus.id] = Yield(st.bus_ok, n, wilson_interval(st.bus_ok, n))
+    return checks, buses
+
+
+def _bus_checks(bus_id: str, st: _Tally, fits: list, n: int, kept: int) -> list[McCheck]:
+    """The checks of one bus over the ``n`` boards, from its tally and fits."""
+    checks = []
+    for j, (name, (signal, cid, unit), mg, val, (sens, r2)) in enumerate(zip(
+            st.names, st.meta, st.margin, st.value, fits, strict=True)):
+        passes = int(n - st.fails[j])
+        ec = name["engine"]
+        checks.append(McCheck(
+            name["name"], bus_id, name["segment"], signal, cid, unit,
+            ec.source if ec is not None else "", ec.status if ec is not None else None,
+            ec.margin if ec is not None else None,
+            Yield(passes, n, wilson_interval(passes, n)), mg, val, sens, r2,
+            warns=int(st.warns[j]), fails=int(st.fails[j]),
+            low=st.extreme(j, 0), high=st.extreme(j, 1), worst_board=st.worst_board(j),
+            sampled=kept, histogram=st.hist[j]))
+    return checks
+
+
+def _run_notes(run: _Run, n: int) -> list[str]:
+    """The notes of a run: buses not sampled, the push-pull tables' notes, boards the
+    engine evaluated, normal draws, and the boards the sensitivities come from."""
+    design = run.design
+    notes = _not_sampled(design) + run.pp_notes
+    for bus_id, k in run.engine_boards.items():
+        if k and isinstance(run.tables.get(bus_id), pptable.LineTable):
+            notes.append(f"bus {bus_id}: {k} boards evaluated by the engine (outside the "
+                         "tolerance box, or close to failing)")
+    if design.distribution == "normal":
+        notes.append("normal draws: each tolerance is 3σ (a value may lie beyond it)")
+    if n > SENSITIVITY_BOARDS and run.stores:
+        notes.append(f"sensitivities, margin quantiles and histograms from the first "
+                     f"{SENSITIVITY_BOARDS:,} boards; pass counts and lowest margins from all")
+    return notes

@@ -1,0 +1,84 @@
+"""Boards that pass, of all drawn, with the Wilson score interval of the fraction."""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from statistics import NormalDist
+
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
+
+#: Confidence level of the pass-fraction intervals.
+CONFIDENCE = 0.95
+
+
+def wilson_interval(passes: int, n: int, confidence: float = CONFIDENCE) -> tuple[float, float]:
+    """Wilson score interval of a binomial proportion.
+
+    Parameters
+    ----------
+    passes : int
+        Successes. [1]
+    n : int
+        Trials, at least 1. [1]
+    confidence : float, optional
+        Two-sided confidence level; default 0.95. [1]
+
+    Returns
+    -------
+    (float, float)
+        Lower and upper bound of the proportion. [1]
+
+    Notes
+    -----
+    With :math:`\\hat p = k/n` and :math:`z` the normal quantile of
+    :math:`(1 + \\gamma)/2`:
+
+    .. math::
+
+        \\frac{\\hat p + z^2/2n \\pm z\\sqrt{\\hat p(1-\\hat p)/n + z^2/4n^2}}{1 + z^2/n}
+
+    (Wilson 1927).  Unlike the normal approximation it stays inside [0, 1] and keeps
+    its coverage near 0 and 1, where yields live (Newcombe 1998).
+
+    Examples
+    --------
+    >>> lo, hi = wilson_interval(81, 263)
+    >>> round(lo, 4), round(hi, 4)
+    (0.2553, 0.3662)
+    """
+    if n < 1 or passes < 0 or passes > n:
+        raise InputError(M.NOT_A_PROPORTION, field="passes", value=(passes, n),
+                         expected="0 <= passes <= n, n >= 1")
+    if not 0 < confidence < 1:
+        raise InputError(M.NOT_A_CONFIDENCE, field="confidence", value=confidence,
+                         expected="between 0 and 1")
+    z = NormalDist().inv_cdf(0.5 + confidence / 2.0)
+    p = passes / n
+    denom = 1.0 + z * z / n
+    centre = (p + z * z / (2.0 * n)) / denom
+    half = z * math.sqrt(p * (1.0 - p) / n + z * z / (4.0 * n * n)) / denom
+    return max(0.0, centre - half), min(1.0, centre + half)
+
+
+@dataclass
+class Yield:
+    """Boards that pass, of all drawn, with the Wilson interval."""
+
+    passes: int
+    n: int
+    interval: tuple[float, float]
+
+    @property
+    def fraction(self) -> float:
+        return self.passes / self.n
+
+    def to_json(self) -> dict:
+        return {"passes": self.passes, "n": self.n, "fraction": self.fraction,
+                "interval": list(self.interval)}
+
+
+def _pct(y: Yield) -> str:
+    lo, hi = y.interval
+    return f"{y.fraction:.2%} [{lo:.2%}, {hi:.2%}] ({y.passes}/{y.n})"
