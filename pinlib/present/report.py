@@ -90,7 +90,7 @@ def _open_drain(group) -> str:
         parts.append(f"Rp {lo or '—'}…{hi or '—'}")
     rp = _fig_text(group, "pullup_resistor") or _fig_text(group, "pullup")
     if rp:
-        parts.append(f"fitted {rp}")
+        parts.append(f"chosen {rp}")
     tr = _fig_text(group, "rise_time")
     if tr:
         parts.append(f"tr {tr}")
@@ -176,13 +176,11 @@ def _problems(result: DesignResult) -> list[tuple[BusResult, str | None, str | N
     return out
 
 
-def _closing(result: DesignResult, more: str | None) -> str:
+def _closing(result: DesignResult) -> str:
     n = counts(result)
     buses = len(result.buses)
     text = (f"{status_word(result.status)} {result.design}: {n['pass']} pass, {n['warn']} warn, "
             f"{n['fail']} fail on {buses} bus{'es' if buses != 1 else ''}")
-    if more:
-        text += f". Every figure and check: {more}"
     return text
 
 
@@ -191,7 +189,7 @@ def _summary(result: DesignResult, cols: int, more: str | None, quiet: bool) -> 
     out: list[str] = []
     if quiet:
         if not problems:
-            return wrap(_closing(result, None), cols)
+            return wrap(_closing(result), cols)
         for b, seg, signal, c in problems:
             out += wrap(problem_line(b, seg, signal, c), cols)
         return out
@@ -206,7 +204,9 @@ def _summary(result: DesignResult, cols: int, more: str | None, quiet: bool) -> 
     for note in result.notes:
         out += wrap(f"note: {note}", cols)
     out.append("")
-    out += wrap(_closing(result, more), cols)
+    out += wrap(_closing(result), cols)
+    if more:  # the command kept on one line where it fits, to copy as it stands
+        out += wrap("Every figure and check: " + more.replace(" ", "\u00a0"), cols)
     return out
 
 

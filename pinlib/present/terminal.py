@@ -26,8 +26,10 @@ DEFAULT_WIDTH = 80
 #: The narrowest text the tables are laid out for (a narrower COLUMNS is raised to it).
 MIN_WIDTH = 40
 
-#: A number and its unit (or a relation and its number) stay on one line.
-_GLUE = re.compile(r"(?<=\d) (?=[^\W\d_]|%|Ω|µ|°)|(?<=[≤≥−+]) (?=\d)")
+#: A number stays on one line with its unit, its relation (≤, ≥) and the word before it
+#: ("tr 242 ns").
+_GLUE = re.compile(r"(?<=\d) (?=[^\W\d_]|%|Ω|µ|°)|(?<=[≤≥−+]) (?=\d)"
+                   r"|(?<=[^\W\d_]) (?=[+−-]?\d)")
 _NBSP = "\u00a0"
 
 _WORDS = {"pass": "PASS", "warn": "WARN", "fail": "FAIL"}
@@ -63,7 +65,7 @@ def status_word(status: str, colour: bool = False) -> str:
 def wrap(text: str, cols: int, indent: str = "", subsequent: str = "    ") -> list[str]:
     """One logical line wrapped to ``cols`` characters, continuation lines indented by
     ``subsequent`` (after ``indent``); a word longer than the width is broken."""
-    glued = _GLUE.sub(_NBSP, text.replace(_NBSP, " "))
+    glued = _GLUE.sub(_NBSP, text)
     lines = textwrap.wrap(glued, max(10, cols), initial_indent=indent,
                           subsequent_indent=indent + subsequent, break_on_hyphens=False)
     return [ln.replace(_NBSP, " ") for ln in lines] or [indent.rstrip()]
