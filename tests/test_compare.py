@@ -601,6 +601,15 @@ def test_swap_prints_side_by_side_and_exits_like_check(board, capsys):
     assert "No check changed status." in capsys.readouterr().out
 
 
+def test_swap_text_fits_the_width_without_colour(board, capsys, monkeypatch):
+    monkeypatch.setenv("COLUMNS", "80")
+    assert main(["swap", str(board), "U4=eeprom-hicap"]) == 1
+    out = capsys.readouterr().out
+    assert max(len(ln) for ln in out.splitlines()) <= 80
+    assert "\x1b[" not in out  # capsys is not a terminal
+    assert "every figure before and after: --detail" in out
+
+
 def test_swap_json(board, capsys):
     code = main(["swap", str(board), "U4=eeprom-hicap", "--json", "--threshold", "50%"])
     data = json.loads(capsys.readouterr().out)

@@ -26,7 +26,7 @@ from pinlib.present.terminal import DEFAULT_WIDTH, status_word, wrap
 from pinlib.present.values import counts, format_value
 
 __all__ = ["format_text", "format_value", "problem_line", "bus_line", "counts",
-           "CAUTION_LINE", "MODES", "paint"]
+           "CAUTION_LINE", "MODES", "paint", "fit"]
 
 #: The caution in one line (the whole text heads ``--detail`` and the JSON).
 CAUTION_LINE = "Caution: estimates for design review; confirm them on the real board."
@@ -247,13 +247,13 @@ def format_text(result: DesignResult, *, mode: str = "summary", width: int = DEF
         lines = detail_lines(result, width)
     else:
         lines = _summary(result, width, more, quiet=mode == "quiet")
-    lines = _fit(lines, width)
+    lines = fit(lines, width)
     if colour:
         lines = paint(lines)
     return "\n".join(lines) + "\n"
 
 
-def _fit(lines: list[str], cols: int) -> list[str]:
+def fit(lines: list[str], cols: int) -> list[str]:
     """Every line within ``cols``: a line still too long is wrapped at its own indent."""
     out = []
     for ln in lines:

@@ -151,9 +151,9 @@ def run(args) -> int:
     else:
         sys.stdout.write(render_text(result, args, design_arg=args.design))
         if changes is not None and not getattr(args, "quiet", False):
-            sys.stdout.write("\n" + changes.format_text())
+            sys.stdout.write("\n" + _fitted(changes.format_text()))
         for value in extra.values():
-            sys.stdout.write("\n" + value.format_text())
+            sys.stdout.write("\n" + _fitted(value.format_text()))
     if args.save:
         from pinlib.studies.compare import save_snapshot
 
@@ -175,6 +175,14 @@ def render_text(result, args, *, design_arg: str | None = None, stream=None) -> 
     if design_arg is not None:
         more = f"pinlib check {_quoted(design_arg)} --detail"
     return format_text(result, mode=mode, width=width(), colour=use_colour(stream), more=more)
+
+
+def _fitted(text: str) -> str:
+    """Text of the studies (change list, corners, Monte Carlo) wrapped to the width."""
+    from pinlib.present.report import fit
+    from pinlib.present.terminal import width
+
+    return "\n".join(fit(text.rstrip("\n").split("\n"), width())) + "\n"
 
 
 def _quoted(path: str) -> str:
