@@ -66,8 +66,8 @@ def problem_line(bus: BusResult, where: str | None, signal: str | None, c: Check
     signal and device, the check, value against limit, margin, the fix."""
     place = bus.id + (f"/{where}" if where else "")
     who = " ".join(x for x in (signal.upper() if signal else None, c.subject) if x)
-    text = f"{status_word(c.status)} {place}{' ' + who if who else ''}: {check_label(c.id)} "
-    text += _against(c)
+    text = f"{status_word(c.status)} {place}{' ' + who if who else ''}: {check_label(c.id)}"
+    text += (": " if isinstance(c.value, bool) or c.value is None else " ") + _against(c)
     if c.fix:
         text += f"; fix: {c.fix}"
     return text
@@ -120,6 +120,8 @@ def _worst_text(bus: BusResult) -> str | None:
 def _spi(bus: BusResult) -> list[str]:
     parts = []
     clock = _fig_text(bus, "max_clock")
+    if clock is None and "max_clock" in bus.figures:
+        parts.append("max clock — (not computed; the notes in --detail say why)")
     if clock:
         by = _fig_text(bus, "max_clock_limited_by")
         parts.append(f"max clock {clock}" + (f" (set by {by})" if by else ""))
