@@ -581,7 +581,8 @@ def test_push_pull_scl_only_without_other_scl_drivers(board):
 
 def test_swap_prints_side_by_side_and_exits_like_check(board, capsys):
     original = board.read_bytes()
-    code = main(["swap", str(board), "U4=eeprom-hicap"])
+    # the side-by-side table of every figure moved to --detail (issue 15)
+    code = main(["swap", str(board), "U4=eeprom-hicap", "--detail"])
     out = capsys.readouterr().out
     assert code == 1  # the swapped design fails
     assert "before" in out and "after" in out
@@ -589,9 +590,24 @@ def test_swap_prints_side_by_side_and_exits_like_check(board, capsys):
     assert "rise-time SDA: pass → fail" in out
     assert "U4 SDA c_in 8 pF → 80 pF" in out
     assert board.read_bytes() == original  # no --write: untouched
+    # the default: what changed only (status, the figures that moved, the part values)
+    assert main(["swap", str(board), "U4=eeprom-hicap"]) == 1
+    short = capsys.readouterr().out
+    assert "rise-time SDA: pass → fail" in short and "U4 SDA c_in 8 pF → 80 pF" in short
+    assert "Figures that moved:" in short and "Rise time tr (30–70 %)" in short
+    assert "* rise_time_sda" not in short and len(short.splitlines()) < len(out.splitlines())
     # a substitution that keeps the bus passing exits 0
     assert main(["swap", str(board), "U4=eeprom-i2c"]) == 0
     assert "No check changed status." in capsys.readouterr().out
+
+
+def test_swap_text_fits_the_width_without_colour(board, capsys, monkeypatch):
+    monkeypatch.setenv("COLUMNS", "80")
+    assert main(["swap", str(board), "U4=eeprom-hicap"]) == 1
+    out = capsys.readouterr().out
+    assert max(len(ln) for ln in out.splitlines()) <= 80
+    assert "\x1b[" not in out  # capsys is not a terminal
+    assert "every figure before and after: --detail" in out
 
 
 def test_swap_json(board, capsys):

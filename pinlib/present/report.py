@@ -1,121 +1,267 @@
-"""Presentation of results: plain text for the terminal (HTML and Markdown come later).
+"""The text of `pinlib check`: problems first, one line per bus, the way to the detail.
 
-Nothing here computes a figure: it formats what the engines returned, with SI prefixes.
+Three views of one :class:`~pinlib.model.result.DesignResult`, each a list of lines fitted
+to a width (:func:`format_text`):
+
+* ``summary`` (the default): the caution in one line, every failing and warning check on
+  one logical line (where, what, value against limit, margin, the fix), one line per bus
+  with the figures that matter for its protocol, and a closing line with the counts and
+  the command that shows the rest;
+* ``quiet``: the problem lines only, or the closing line alone when every check passes;
+* ``detail``: every figure and check (:mod:`pinlib.present.detail`).
+
+Nothing here computes a figure: it formats what the engines returned, with SI prefixes
+and the readable labels of :mod:`pinlib.present.labels` (ids stay in the JSON).
 """
 
 from __future__ import annotations
 
 import math
-import textwrap
+import re
 
-from pinlib.core.quantity import format_si
-from pinlib.model.result import CAUTION, BusResult, Check, DesignResult, Group, margin_text
+from pinlib.model.result import BusResult, Check, DesignResult, margin_text
+from pinlib.present.detail import detail_lines
+from pinlib.present.labels import check_label, humanize
+from pinlib.present.terminal import DEFAULT_WIDTH, status_word, wrap
+from pinlib.present.values import counts, format_value
 
-__all__ = ["format_text", "format_value"]
+__all__ = ["format_text", "format_value", "problem_line", "bus_line", "counts",
+           "CAUTION_LINE", "MODES", "paint", "fit"]
 
-_MARK = {"pass": "pass", "warn": "WARN", "fail": "FAIL"}
-_WIDTH = 100
+#: The caution in one line (the whole text heads ``--detail`` and the JSON).
+CAUTION_LINE = "Caution: estimates for design review; confirm them on the real board."
+MODES = ("summary", "quiet", "detail")
+_STATUS_RE = re.compile(r"\b(PASS|WARN|FAIL)\b")
 
 
-def format_value(value, unit: str) -> str:
-    """A figure or check value as text: SI prefix, yes/no, or a dash for none."""
-    if value is None:
-        return "—"
-    if isinstance(value, bool):
-        return "yes" if value else "no"
-    if isinstance(value, str):
-        return value
+def _relation(c: Check) -> str:
+    """"≤" or "≥" when the value, limit and margin tell which side passes; "" if not."""
     try:
-        x = float(value)
+        v, lim, m = float(c.value), float(c.limit), float(c.margin)
     except (TypeError, ValueError):
-        return str(value)
-    if not math.isfinite(x):
-        return "∞" if x > 0 else ("−∞" if x < 0 else "—")
-    if not unit:
-        return f"{x:.4g}"
-    return format_si(x, unit)
+        return ""
+    if not all(math.isfinite(x) for x in (v, lim, m)) or v == lim or m == 0:
+        return ""
+    if c.margin_unit is None and lim < 0:
+        return ""
+    return "≥" if (v > lim) == (m > 0) else "≤"
 
 
-def _margin(c: Check) -> str:
-    return margin_text(c)
+def _against(c: Check) -> str:
+    """The value against its limit: ``"242 ns, limit ≤ 300 ns, margin +19 %"``."""
+    if isinstance(c.value, bool) or c.value is None:
+        return c.reason or c.message
+    text = format_value(c.value, c.unit)
+    if not isinstance(c.limit, bool) and c.limit is not None:
+        rel = _relation(c)
+        text += f", limit {rel + ' ' if rel else ''}{format_value(c.limit, c.unit)}"
+    margin = margin_text(c)
+    if margin:
+        text += f", margin {margin}"
+    return text
 
 
-def _table(rows: list[list[str]], indent: str) -> list[str]:
-    widths = [max(len(r[i]) for r in rows) for i in range(len(rows[0]))]
+def problem_line(bus: BusResult, where: str | None, signal: str | None, c: Check) -> str:
+    """One failing or warning check as one logical line: status, bus (segment or line),
+    signal and device, the check, value against limit, margin, the fix."""
+    place = bus.id + (f"/{where}" if where else "")
+    who = " ".join(x for x in (signal.upper() if signal else None, c.subject) if x)
+    text = f"{status_word(c.status)} {place}{' ' + who if who else ''}: {check_label(c.id)}"
+    text += (": " if isinstance(c.value, bool) or c.value is None else " ") + _against(c)
+    if c.fix:
+        text += f"; fix: {c.fix}"
+    return text
+
+
+def _fig_text(group, name: str) -> str | None:
+    f = group.figures.get(name)
+    if f is None or f.value is None:
+        return None
+    return format_value(f.value, f.unit)
+
+
+def _open_drain(group) -> str:
+    parts = []
+    cb = _fig_text(group, "bus_capacitance")
+    if cb:
+        parts.append(f"Cb {cb}")
+    lo, hi = _fig_text(group, "rp_min"), _fig_text(group, "rp_max")
+    if lo or hi:
+        parts.append(f"Rp {lo or '—'}…{hi or '—'}")
+    rp = _fig_text(group, "pullup_resistor") or _fig_text(group, "pullup")
+    if rp:
+        parts.append(f"chosen {rp}")
+    tr = _fig_text(group, "rise_time")
+    if tr:
+        parts.append(f"tr {tr}")
+    return ", ".join(parts)
+
+
+def _worst(bus: BusResult) -> tuple[Check | None, str | None]:
+    """The check of the bus with the smallest relative margin, and its line's signal."""
+    best, where, key = None, None, math.inf
+    for _, signal, c in bus.all_checks():
+        if c.margin is None or c.margin_unit is not None:
+            continue
+        m = float(c.margin)
+        if math.isfinite(m) and m < key:
+            best, where, key = c, signal, m
+    return best, where
+
+
+def _worst_text(bus: BusResult) -> str | None:
+    c, signal = _worst(bus)
+    if c is None:
+        return None
+    who = " ".join(x for x in (signal.upper() if signal else None, c.subject) if x)
+    return f"worst margin {margin_text(c)} ({check_label(c.id)}{' ' + who if who else ''})"
+
+
+def _spi(bus: BusResult) -> list[str]:
+    parts = []
+    clock = _fig_text(bus, "max_clock")
+    if clock is None and "max_clock" in bus.figures:
+        parts.append("max clock — (not computed; the notes in --detail say why)")
+    if clock:
+        by = _fig_text(bus, "max_clock_limited_by")
+        parts.append(f"max clock {clock}" + (f" (set by {by})" if by else ""))
+    worst = _worst_text(bus)
+    if worst:
+        parts.append(worst)
+    return parts
+
+
+def _gpio(bus: BusResult) -> list[str]:
+    parts, best = [], None
+    for ln in bus.lines:
+        for name, edge in (("edge_rise_time", "rise"), ("edge_fall_time", "fall")):
+            f = ln.figures.get(name)
+            if f is None or not isinstance(f.value, (int, float)) or isinstance(f.value, bool):
+                continue
+            if math.isfinite(f.value) and (best is None or f.value > best[0]):
+                best = (float(f.value), f.unit, ln.signal, edge)
+    if best:
+        parts.append(f"worst edge {format_value(best[0], best[1])} ({best[2]} {best[3]})")
+    worst = _worst_text(bus)
+    if worst:
+        parts.append(worst)
+    return parts
+
+
+def bus_line(bus: BusResult) -> str:
+    """One bus as one logical line: status, name, protocol and the figures that matter."""
+    head = f"{status_word(bus.status)} {bus.id} ({humanize(bus.protocol)})"
+    if bus.segments:
+        parts = []
+        for s in bus.segments:
+            mark = "" if s.status == "pass" else f" {status_word(s.status)}"
+            parts.append(f"{s.id}{mark}: {_open_drain(s)}")
+        body = "; ".join(parts)
+    elif "rp_min" in bus.figures or "bus_capacitance" in bus.figures:
+        body = _open_drain(bus)
+    elif bus.protocol == "spi":
+        body = ", ".join(_spi(bus))
+    elif bus.protocol == "gpio":
+        body = ", ".join(_gpio(bus))
+    else:
+        body = _worst_text(bus) or ""
+    return head + (f": {body}" if body else "")
+
+
+def _problems(result: DesignResult) -> list[tuple[BusResult, str | None, str | None, Check]]:
     out = []
-    for r in rows:
-        out.append(indent + "  ".join(cell.ljust(w)
-                                      for cell, w in zip(r, widths, strict=True)).rstrip())
+    for status in ("fail", "warn"):
+        for b in result.buses:
+            for seg, signal, c in b.all_checks():
+                if c.status == status:
+                    out.append((b, seg, signal, c))
     return out
 
 
-def _group(g: Group, indent: str) -> list[str]:
-    out = []
-    if g.figures:
-        out.append(f"{indent}figures")
-        rows = [[name, format_value(f.value, f.unit)] for name, f in g.figures.items()]
-        out += _table(rows, indent + "  ")
-    if g.checks:
-        out.append(f"{indent}checks")
-        rows = [["status", "check", "subject", "value", "limit", "margin", "source"]]
-        for c in g.checks:
-            limit = format_value(c.limit, c.unit) if not isinstance(c.limit, bool) else ""
-            value = format_value(c.value, c.unit) if not isinstance(c.value, bool) else ""
-            rows.append([_MARK[c.status], c.id, c.subject or "", value, limit, _margin(c),
-                         c.source])
-        out += _table(rows, indent + "  ")
-        problems = [c for c in g.checks if c.status != "pass"]
-        for c in problems:
-            about = f" ({c.subject})" if c.subject else ""
-            lines = textwrap.wrap(f"{_MARK[c.status]} {c.id}{about}: {c.message}",
-                                  _WIDTH - len(indent) - 2, subsequent_indent="    ")
-            out += [indent + "  " + ln for ln in lines]
-    if g.notes:
-        out.append(f"{indent}notes")
-        for n in g.notes:
-            out += [indent + "  " + ln for ln in
-                    textwrap.wrap(f"- {n}", _WIDTH - len(indent) - 2, subsequent_indent="    ")]
+def _closing(result: DesignResult) -> str:
+    n = counts(result)
+    buses = len(result.buses)
+    text = (f"{status_word(result.status)} {result.design}: {n['pass']} pass, {n['warn']} warn, "
+            f"{n['fail']} fail on {buses} bus{'es' if buses != 1 else ''}")
+    return text
+
+
+def _summary(result: DesignResult, cols: int, more: str | None, quiet: bool) -> list[str]:
+    problems = _problems(result)
+    out: list[str] = []
+    if quiet:
+        if not problems:
+            return wrap(_closing(result), cols)
+        for b, seg, signal, c in problems:
+            out += wrap(problem_line(b, seg, signal, c), cols)
+        return out
+    out += wrap(CAUTION_LINE, cols)
+    out.append("")
+    if problems:
+        for b, seg, signal, c in problems:
+            out += wrap(problem_line(b, seg, signal, c), cols)
+        out.append("")
+    for b in result.buses:
+        out += wrap(bus_line(b), cols)
+    for note in result.notes:
+        out += wrap(f"note: {note}", cols)
+    out.append("")
+    out += wrap(_closing(result), cols)
+    if more:  # the command kept on one line where it fits, to copy as it stands
+        out += wrap("Every figure and check: " + more.replace(" ", "\u00a0"), cols)
     return out
 
 
-def _bus(b: BusResult) -> list[str]:
-    out = [f"bus {b.id} ({b.protocol}): {b.status.upper()}"]
-    out += _group(b, "  ")
-    for s in b.segments:
-        out.append(f"  segment {s.id}: {s.status.upper()}")
-        out += _group(s, "    ")
-    for ln in b.lines:
-        out.append(f"  line {ln.signal}: {ln.status.upper()}")
-        out += _group(ln, "    ")
-    return out
+def paint(lines: list[str]) -> list[str]:
+    """The status words of ``lines`` in colour (after wrapping: widths count letters)."""
+    return [_STATUS_RE.sub(lambda m: status_word(m.group(1).lower(), True), ln)
+            for ln in lines]
 
 
-def format_text(result: DesignResult) -> str:
-    """The whole result as text: the caution first, then a table per bus and segment.
+def format_text(result: DesignResult, *, mode: str = "summary", width: int = DEFAULT_WIDTH,
+                colour: bool = False, more: str | None = None) -> str:
+    """A design's result as text.
 
     Parameters
     ----------
     result : DesignResult
         What :func:`pinlib.engines.dispatch.check_design` returned.
+    mode : {"summary", "quiet", "detail"}, optional
+        What to show (see the module's description). [1]
+    width : int, optional
+        Columns to fit: no line is longer. [1]
+    colour : bool, optional
+        Colour the status words with ANSI codes (for a terminal). [1]
+    more : str, optional
+        The command that shows the detail, named on the summary's closing line; by
+        default ``pinlib check PATH --detail``. [1]
 
     Returns
     -------
     str
-        Lines ready to print (figures with SI prefixes; each check with its status,
-        value, limit, margin and source; problems spelt out below the table).
+        Lines ready to print, each at most ``width`` characters (escape codes aside).
     """
-    out = textwrap.wrap(f"Caution: {CAUTION}", _WIDTH)
-    out.append("")
-    out.append(f"design: {result.design}" + (f" ({result.path})" if result.path else ""))
-    counts = {s: 0 for s in ("pass", "warn", "fail")}
-    for b in result.buses:
-        for _, _, c in b.all_checks():
-            counts[c.status] += 1
-    out.append(f"status: {result.status.upper()} — {counts['pass']} pass, {counts['warn']} warn, "
-               f"{counts['fail']} fail (warn below {result.warn_margin:.0%} margin)")
-    for n in result.notes:
-        out.append(f"note: {n}")
-    for b in result.buses:
-        out.append("")
-        out += _bus(b)
-    return "\n".join(out) + "\n"
+    if mode not in MODES:
+        raise ValueError(f"mode must be one of {MODES}, not {mode!r}")
+    if more is None:
+        more = f"pinlib check {result.path or 'DESIGN'} --detail"
+    if mode == "detail":
+        lines = detail_lines(result, width)
+    else:
+        lines = _summary(result, width, more, quiet=mode == "quiet")
+    lines = fit(lines, width)
+    if colour:
+        lines = paint(lines)
+    return "\n".join(lines) + "\n"
+
+
+def fit(lines: list[str], cols: int) -> list[str]:
+    """Every line within ``cols``: a line still too long is wrapped at its own indent."""
+    out = []
+    for ln in lines:
+        if len(ln) <= cols:
+            out.append(ln.rstrip())
+            continue
+        indent = ln[: len(ln) - len(ln.lstrip())]
+        out += wrap(ln.strip(), cols, indent)
+    return out

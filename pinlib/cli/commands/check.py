@@ -13,6 +13,8 @@ __all__ = ["add_parser", "run"]
 EXAMPLES = """\
 examples:
   pinlib check workbooks/designs/demo-board.toml
+  pinlib check board.toml --detail          # every figure and check, with sources
+  pinlib check board.toml --quiet           # only the problems
   pinlib check board.toml --json > result.json
   pinlib check board.toml --library ~/team-parts --library ./parts
   pinlib check board.toml --save            # keep board.result.json as the reference
@@ -26,6 +28,11 @@ drawn at random (uniform, or normal with the tolerance at 3 sigma when the desig
 distribution = "normal"). Monte Carlo reports each check's pass fraction with a 95 %
 Wilson score interval and the parameters its margin follows most closely; a seed
 makes the run repeatable. The exit status stays that of the worst-case check.
+
+The text lists the failing and warning checks first, each with its fix, then one line
+per bus and a closing line; --detail prints every figure and check, --quiet only the
+problems. Lines fit COLUMNS (80 when not a terminal); status words are coloured on a
+terminal unless NO_COLOR is set.
 
 exit status: 0 pass or warn, 1 a check fails, 2 the design or library is not valid.
 """
@@ -68,7 +75,19 @@ def add_parser(sub) -> None:
                    help="seed of the Monte Carlo draws (repeatable runs)")
     p.add_argument("--progress", action="store_true",
                    help="show a progress bar even when standard error is not a terminal")
+    add_output_options(p)
     p.set_defaults(run=run)
+
+
+def add_output_options(p) -> None:
+    """--detail and --quiet: how much of the text to print (JSON is always whole)."""
+    how = p.add_mutually_exclusive_group()
+    how.add_argument("--detail", action="store_true",
+                     help="print every figure and check, with sources and notes (the "
+                          "default prints the problems and one line per bus)")
+    how.add_argument("--quiet", "-q", action="store_true",
+                     help="print only the failing and warning checks (the closing line "
+                          "alone when all pass)")
 
 
 def samples_type(text):
@@ -130,18 +149,46 @@ def run(args) -> int:
         json.dump(out, sys.stdout, indent=2, ensure_ascii=False)
         sys.stdout.write("\n")
     else:
-        from pinlib.present.report import format_text
-
-        sys.stdout.write(format_text(result))
-        if changes is not None:
-            sys.stdout.write("\n" + changes.format_text())
+        sys.stdout.write(render_text(result, args, design_arg=args.design))
+        if changes is not None and not getattr(args, "quiet", False):
+            sys.stdout.write("\n" + _fitted(changes.format_text()))
         for value in extra.values():
-            sys.stdout.write("\n" + value.format_text())
+            sys.stdout.write("\n" + _fitted(value.format_text()))
     if args.save:
         from pinlib.studies.compare import save_snapshot
 
         print(f"saved {save_snapshot(design, result)}", file=sys.stderr)
     return result.exit_code()
+
+
+def render_text(result, args, *, design_arg: str | None = None, stream=None) -> str:
+    """One design's result as the text ``pinlib check`` prints: the view the options ask
+    for (--detail, --quiet, else the summary), fitted to the terminal's width (COLUMNS,
+    else 80 off a terminal), status words coloured on a terminal unless NO_COLOR is set."""
+    from pinlib.present.report import format_text
+    from pinlib.present.terminal import use_colour, width
+
+    stream = sys.stdout if stream is None else stream
+    mode = ("detail" if getattr(args, "detail", False) else
+            "quiet" if getattr(args, "quiet", False) else "summary")
+    more = None
+    if design_arg is not None:
+        more = f"pinlib check {_quoted(design_arg)} --detail"
+    return format_text(result, mode=mode, width=width(), colour=use_colour(stream), more=more)
+
+
+def _fitted(text: str) -> str:
+    """Text of the studies (change list, corners, Monte Carlo) wrapped to the width."""
+    from pinlib.present.report import fit
+    from pinlib.present.terminal import width
+
+    return "\n".join(fit(text.rstrip("\n").split("\n"), width())) + "\n"
+
+
+def _quoted(path: str) -> str:
+    import shlex
+
+    return shlex.quote(str(path))
 
 
 def _warn_implausible(design) -> None:

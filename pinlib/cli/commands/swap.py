@@ -28,7 +28,9 @@ examples:
   pinlib swap board.toml U4=eeprom-hicap --library ./parts --write
   pinlib swap board.toml U4=eeprom-hicap --json > swap.json
 
-Figures marked * moved by more than the threshold (5 % unless --threshold).
+The text lists what changed: checks whose status changed, figures that moved by more
+than the threshold (5 % unless --threshold) and the part values behind them; --detail
+prints every figure before and after (those that moved marked *).
 A part that cannot serve the position (a pin function the old part served on that bus
 is missing, or its drive is wrong for the role, e.g. a push-pull SDA, a peripheral's
 CIPO that is not push-pull) is refused with the reason and the file is not touched.
@@ -74,6 +76,10 @@ def add_parser(sub) -> None:
                    help="a team library folder (repeatable; takes precedence over the design's)")
     p.add_argument("--threshold", metavar="PCT", type=threshold_type, default=None,
                    help="list figures that move by more than this (default 5%%)")
+    p.add_argument("--detail", action="store_true",
+                   help="print every figure before and after (the default prints what "
+                        "changed: checks whose status changed, figures that moved, the part "
+                        "values behind them)")
     p.set_defaults(run=run)
 
 
@@ -161,7 +167,8 @@ def run(args) -> int:
                   sys.stdout, indent=2, ensure_ascii=False)
         sys.stdout.write("\n")
         return after.exit_code()
-    out = _text(design, swap_rows, rows, before, after, changes)
+    out = _text(design, swap_rows, rows, before, after, changes,
+                detail=getattr(args, "detail", False))
     if written:
         out.append(f"Wrote {design.path} (only the part of {', '.join(swaps)} changed).")
     elif args.write:
@@ -169,9 +176,33 @@ def run(args) -> int:
     else:
         out.append("Design file not changed (add --write to apply the substitution).")
     out.append("")
-    out.append(CAUTION)
-    sys.stdout.write("\n".join(out) + "\n")
+    if getattr(args, "detail", False):
+        out.append(CAUTION)
+    else:
+        from pinlib.present.report import CAUTION_LINE
+
+        out.append(CAUTION_LINE)
+    sys.stdout.write(_fitted(out))
     return after.exit_code()
+
+
+def _fitted(lines: list[str]) -> str:
+    """Lines wrapped to the terminal's width (COLUMNS, else 80), continuation lines
+    indented; status words coloured on a terminal unless NO_COLOR is set."""
+    from pinlib.present.report import paint
+    from pinlib.present.terminal import use_colour, width, wrap
+
+    cols = width()
+    out: list[str] = []
+    for ln in lines:
+        if len(ln) <= cols:
+            out.append(ln)
+        else:
+            indent = ln[: len(ln) - len(ln.lstrip())]
+            out += wrap(ln.strip(), cols, indent)
+    if use_colour(sys.stdout):
+        out = paint(out)
+    return "\n".join(out) + "\n"
 
 
 def _report_refusals(args, design, refused: list[dict]) -> int:
@@ -221,27 +252,62 @@ def _swap_rows(design, swaps: dict) -> list[dict]:
     return out
 
 
-def _text(design, swap_rows, rows, before, after, changes) -> list[str]:
-    """The substitutions, the figures that moved, the status and the checks and part
-    values behind a change, as lines of text."""
+def _moved(rows) -> list[str]:
+    """The figures that moved beyond the threshold, by place, under readable labels, each
+    quantity once (:func:`pinlib.present.labels.shown_figures`)."""
+    from pinlib.present.labels import figure_label, shown_figures
+    from pinlib.studies.compare import format_change, format_figure
+
+    by_path: dict[str, dict] = {}
+    for r in rows:
+        if r.moved:
+            by_path.setdefault(r.path, {})[r.name] = r
+    out = []
+    for path, named in by_path.items():
+        keep = shown_figures(named, same=lambda a, b: (a.old, a.new) == (b.old, b.new))
+        for name in keep:
+            r = named[name]
+            change = format_change(r.change) if r.kind in ("moved", "same") else {
+                "added": "(new)", "removed": "(gone)"}.get(r.kind, "")
+            out.append(f"  {path}: {figure_label(name)} {format_figure(r.old, r.unit)} → "
+                       f"{format_figure(r.new, r.unit)} {change}".rstrip())
+    return out
+
+
+def _text(design, swap_rows, rows, before, after, changes, detail=False) -> list[str]:
+    """The substitutions, the status, the checks whose status changed, the figures that
+    moved and the part values behind them, as lines of text; with ``detail`` every figure
+    before and after."""
     out = [f"{design.title} ({design.path})", "Substitutions:"]
     for s in swap_rows:
         same = " (unchanged)" if s["old"] == s["new"] else ""
         out.append(f"  {s['ref']}: {s['old']} → {s['new']}{same}"
                    + (f"  [{s['file']}]" if s["file"] else ""))
     out.append("")
-    out += _table(rows)
-    out.append("")
-    out.append(f"Status: {before.status} → {after.status}")
+    out.append(f"Status: {before.status.upper()} → {after.status.upper()}")
     if changes.status_changes:
         out.append("Checks whose status changed:")
         out += ["  " + c.format() for c in changes.status_changes]
     else:
         out.append("No check changed status.")
+    moved = _moved(rows)
+    if detail:
+        out.append("")
+        out += _table(rows)
+        out.append("")
+    elif moved:
+        out.append("Figures that moved:")
+        out += moved
+    else:
+        out.append("No figure moved beyond the threshold.")
     if changes.part_changes:
         out.append("Part values behind the change:")
         for pc in changes.part_changes:
             out += ["  " + line for line in pc.lines()]
     out += [f"Note: {n}" for n in changes.notes]
+    if not detail:
+        unmoved = sum(1 for r in rows if not r.moved)
+        out.append(f"({unmoved} figures within the threshold; every figure before and "
+                   "after: --detail)")
     out.append("")
     return out

@@ -1,0 +1,143 @@
+"""`pinlib check --detail`: every figure and check of a design, fitted to a width.
+
+Per bus: a table of figures per segment or line (readable labels with units; a quantity
+that repeats another — ``pullup`` and ``pullup_resistor``, a line's copy of the bus
+figure — shown once, :func:`pinlib.present.labels.shown_figures`), a table of checks
+(status, check, subject, value, limit, margin and the number of its source), each
+problem's message spelt out, then the bus's sources and notes, each printed once
+however many lines share it.
+"""
+
+from __future__ import annotations
+
+import textwrap
+
+from pinlib.model.result import CAUTION, BusResult, Group, margin_text
+from pinlib.present.labels import check_label, figure_label, humanize, shown_figures
+from pinlib.present.terminal import status_word, wrap
+from pinlib.present.values import counts, format_value
+
+__all__ = ["detail_lines", "table"]
+
+#: The narrowest a wrapped column gets before the table gives up fitting.
+_MIN_FLEX = 12
+
+
+def table(rows: list[list[str]], indent: str, cols: int, flex: int) -> list[str]:
+    """Rows as aligned columns; column ``flex`` wraps so the table fits ``cols``."""
+    n = len(rows[0])
+    widths = [max(len(r[i]) for r in rows) for i in range(n)]
+    others = sum(w for i, w in enumerate(widths) if i != flex) + 2 * (n - 1) + len(indent)
+    widths[flex] = max(_MIN_FLEX, min(widths[flex], cols - others))
+    out = []
+    for r in rows:
+        pieces = textwrap.wrap(r[flex], widths[flex], break_on_hyphens=False) or [""]
+        for k, piece in enumerate(pieces):
+            cells = [(piece if i == flex else (r[i] if k == 0 else ""))
+                     for i in range(n)]
+            out.append((indent + "  ".join(c.ljust(w) for c, w in
+                                           zip(cells, widths, strict=True))).rstrip())
+    return out
+
+
+def _same(a, b) -> bool:
+    return a.value == b.value and a.unit == b.unit
+
+
+def _figures(g: Group, indent: str, cols: int) -> list[str]:
+    names = shown_figures(g.figures, same=_same)
+    if not names:
+        return []
+    rows = [[figure_label(n), format_value(g.figures[n].value, g.figures[n].unit)]
+            for n in names]
+    return table(rows, indent, cols, flex=0)
+
+
+def _checks(g: Group, indent: str, cols: int, sources: dict[str, int]) -> list[str]:
+    if not g.checks:
+        return []
+    rows = [["status", "check", "subject", "value", "limit", "margin", "src"]]
+    for c in g.checks:
+        limit = "" if isinstance(c.limit, bool) else format_value(c.limit, c.unit)
+        value = "" if isinstance(c.value, bool) else format_value(c.value, c.unit)
+        ref = sources.setdefault(c.source, len(sources) + 1)
+        rows.append([status_word(c.status), check_label(c.id), c.subject or "", value, limit,
+                     margin_text(c), f"[{ref}]"])
+    out = table(rows, indent, cols, flex=1)
+    for c in g.checks:
+        if c.status == "pass":
+            continue
+        about = f" ({c.subject})" if c.subject else ""
+        text = f"{status_word(c.status)} {check_label(c.id)}{about}: {c.message}"
+        if c.reason and c.reason not in c.message:
+            text += f" ({c.reason})"
+        if c.fix and c.fix not in c.message:
+            text += f"; fix: {c.fix}"
+        out += wrap(text, cols, indent)
+    return out
+
+
+def _group(g: Group, head: str, indent: str, cols: int, sources: dict) -> list[str]:
+    out = [f"{indent[:-2]}{head}"] if head else []
+    out += _figures(g, indent, cols)
+    out += _checks(g, indent, cols, sources)
+    return out
+
+
+def _notes(bus: BusResult) -> list[str]:
+    """The bus's notes, each once: a note that only some of its segments or lines give
+    names them."""
+    places: dict[str, list[str]] = {}
+    groups = [("", bus)] + [(s.id, s) for s in bus.segments] + \
+             [(ln.signal, ln) for ln in bus.lines]
+    for name, g in groups:
+        for n in g.notes:
+            places.setdefault(n, [])
+            if name and name not in places[n]:
+                places[n].append(name)
+    subs = len(bus.segments) + len(bus.lines)
+    out = []
+    for note, where in places.items():
+        if not where or len(where) == subs and subs > 1:
+            out.append(note)
+        else:
+            out.append(f"{', '.join(where)}: {note}")
+    return out
+
+
+def _bus(b: BusResult, cols: int) -> list[str]:
+    out = [f"bus {b.id} ({humanize(b.protocol)}): {status_word(b.status)}"]
+    sources: dict[str, int] = {}
+    out += _group(b, "", "  ", cols, sources)
+    for s in b.segments:
+        out += _group(s, f"segment {s.id}: {status_word(s.status)}", "    ", cols, sources)
+    for ln in b.lines:
+        out += _group(ln, f"line {ln.signal}: {status_word(ln.status)}", "    ", cols, sources)
+    if sources:
+        out.append("  sources")
+        for text, k in sources.items():
+            out += wrap(f"[{k}] {text}", cols, "    ", "    ")
+    notes = _notes(b)
+    if notes:
+        out.append("  notes")
+        for n in notes:
+            out += wrap(f"- {n}", cols, "    ", "  ")
+    return out
+
+
+def detail_lines(result, cols: int) -> list[str]:
+    """Every figure and check of ``result`` as lines of at most ``cols`` characters."""
+    out = wrap(f"Caution: {CAUTION}", cols, "", "")
+    out.append("")
+    out += wrap(f"design: {result.design}" + (f" ({result.path})" if result.path else ""),
+                cols)
+    n = counts(result)
+    out += wrap(f"status: {status_word(result.status)} — {n['pass']} pass, {n['warn']} warn, "
+                f"{n['fail']} fail (warn below {result.warn_margin:.0%} margin)", cols)
+    for note in result.notes:
+        out += wrap(f"note: {note}", cols)
+    for b in result.buses:
+        out.append("")
+        out += _bus(b, cols)
+    return out
+

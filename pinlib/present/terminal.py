@@ -1,0 +1,71 @@
+"""What a terminal needs from the text output: its width, whether to colour, wrapping.
+
+* Width: :func:`width` asks :func:`shutil.get_terminal_size`, which honours the
+  ``COLUMNS`` environment variable first and falls back to 80 columns when standard
+  output is not a terminal (a pipe, a file, a test).
+* Colour: only the status words (PASS, WARN, FAIL) are coloured, and only when the
+  output is a terminal and ``NO_COLOR`` is unset or empty (the https://no-color.org
+  convention).  The few ANSI codes are written here: no library is imported, so a
+  fresh ``pinlib check`` pays nothing for them.
+* Wrapping: :func:`wrap` fits one logical line to the width with its continuation lines
+  indented; the width counts characters, not escape codes, since colour is added after
+  wrapping.
+"""
+
+from __future__ import annotations
+
+import os
+import re
+import shutil
+import textwrap
+
+__all__ = ["DEFAULT_WIDTH", "MIN_WIDTH", "width", "use_colour", "status_word", "wrap"]
+
+#: Columns when standard output is not a terminal and COLUMNS is not set.
+DEFAULT_WIDTH = 80
+#: The narrowest text the tables are laid out for (a narrower COLUMNS is raised to it).
+MIN_WIDTH = 40
+
+#: A number stays on one line with its unit, its relation (≤, ≥) and the word before it
+#: ("tr 242 ns").
+_GLUE = re.compile(r"(?<=\d) (?=[^\W\d_]|%|Ω|µ|°)|(?<=[≤≥−+]) (?=\d)"
+                   r"|(?<=[^\W\d_]) (?=[+−-]?\d)")
+_NBSP = "\u00a0"
+
+_WORDS = {"pass": "PASS", "warn": "WARN", "fail": "FAIL"}
+#: SGR codes: green, yellow, bold red.
+_SGR = {"pass": "32", "warn": "33", "fail": "1;31"}
+
+
+def width() -> int:
+    """The columns to fill: COLUMNS, else the terminal's width, else 80 (never below
+    :data:`MIN_WIDTH`)."""
+    cols = shutil.get_terminal_size((DEFAULT_WIDTH, 24)).columns
+    return max(MIN_WIDTH, cols)
+
+
+def use_colour(stream) -> bool:
+    """True when ``stream`` is a terminal and NO_COLOR is unset or empty."""
+    if os.environ.get("NO_COLOR"):
+        return False
+    try:
+        return bool(stream.isatty())
+    except (AttributeError, ValueError):
+        return False
+
+
+def status_word(status: str, colour: bool = False) -> str:
+    """``"warn"`` -> ``"WARN"``, in colour when asked (4 characters wide either way)."""
+    word = _WORDS.get(status, status.upper())
+    if not colour or status not in _SGR:
+        return word
+    return f"\x1b[{_SGR[status]}m{word}\x1b[0m"
+
+
+def wrap(text: str, cols: int, indent: str = "", subsequent: str = "    ") -> list[str]:
+    """One logical line wrapped to ``cols`` characters, continuation lines indented by
+    ``subsequent`` (after ``indent``); a word longer than the width is broken."""
+    glued = _GLUE.sub(_NBSP, text)
+    lines = textwrap.wrap(glued, max(10, cols), initial_indent=indent,
+                          subsequent_indent=indent + subsequent, break_on_hyphens=False)
+    return [ln.replace(_NBSP, " ") for ln in lines] or [indent.rstrip()]

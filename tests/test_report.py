@@ -1,0 +1,208 @@
+"""Tests of pinlib.present.report (the text of `pinlib check`) and its terminal helpers.
+
+The demo's text at 80 and 120 columns is compared with the saved files under
+tests/golden/text/ (PINLIB_UPDATE_TEXT_GOLDENS=1 rewrites them; see
+tests/golden/README.md).  The rest: no line longer than the width, no escape code off a
+terminal or under NO_COLOR, --quiet and --detail, the fix on a problem's line.
+"""
+
+from __future__ import annotations
+
+import io
+import os
+import re
+from pathlib import Path
+
+import pytest
+
+from pinlib.cli import main
+from pinlib.cli.commands.check import render_text
+from pinlib.engines.dispatch import check_file
+from pinlib.present.report import CAUTION_LINE, bus_line, format_text, problem_line
+from pinlib.present.terminal import status_word, use_colour, width, wrap
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO_ARG = "workbooks/designs/demo-board.toml"   # as a user in the checkout types it
+GOLDEN = ROOT / "tests" / "golden" / "text"
+UPDATE = os.environ.get("PINLIB_UPDATE_TEXT_GOLDENS") == "1"
+ESC = "\x1b["
+
+#: (golden file, COLUMNS, extra arguments)
+CASES = [("demo-80.txt", 80, []), ("demo-120.txt", 120, []),
+         ("demo-detail-80.txt", 80, ["--detail"]), ("demo-quiet-80.txt", 80, ["--quiet"])]
+
+
+def _run(monkeypatch, capsys, cols, *argv):
+    monkeypatch.chdir(ROOT)
+    monkeypatch.setenv("COLUMNS", str(cols))
+    monkeypatch.delenv("NO_COLOR", raising=False)
+    code = main(["check", DEMO_ARG, *argv])
+    return code, capsys.readouterr().out
+
+
+@pytest.fixture(scope="module")
+def demo():
+    return check_file(ROOT / DEMO_ARG)
+
+
+@pytest.mark.parametrize("name, cols, argv", CASES)
+def test_demo_text_matches_its_golden(monkeypatch, capsys, name, cols, argv):
+    code, out = _run(monkeypatch, capsys, cols, *argv)
+    assert code == 0  # the demo warns, it does not fail
+    path = GOLDEN / name
+    if UPDATE:
+        path.parent.mkdir(parents=True, exist_ok=True)
+        path.write_text(out, encoding="utf-8")
+    assert out == path.read_text(encoding="utf-8"), (
+        f"{name} differs; if the change is meant, rerun with PINLIB_UPDATE_TEXT_GOLDENS=1")
+
+
+@pytest.mark.parametrize("cols", [40, 60, 80, 100, 120])
+@pytest.mark.parametrize("argv", [[], ["--detail"], ["--quiet"]])
+def test_no_line_is_wider_than_the_width(monkeypatch, capsys, cols, argv):
+    _, out = _run(monkeypatch, capsys, cols, *argv)
+    assert max(len(ln) for ln in out.splitlines()) <= cols
+
+
+def test_default_fits_a_screen_problems_first(monkeypatch, capsys):
+    _, out = _run(monkeypatch, capsys, 80)
+    lines = out.splitlines()
+    assert len(lines) <= 24  # one terminal screen: the aim of issue 15
+    assert lines[0] == CAUTION_LINE
+    # the one warning of the demo comes before the buses, with its fix on its line
+    warn = next(i for i, ln in enumerate(lines) if ln.startswith("WARN sensors/sensor-1v8 Q1"))
+    bus = next(i for i, ln in enumerate(lines) if ln.startswith("WARN sensors (I2C)"))
+    assert warn < bus
+    assert "fix: a MOSFET" in " ".join(lines[warn:bus])
+    for b in ("power (SMBus)", "flash (SPI)", "display (SPI)"):
+        assert any(ln.startswith(f"PASS {b}") for ln in lines)
+    assert lines[-1].endswith("--detail") or "--detail" in " ".join(lines[-3:])
+    assert "pinlib check workbooks/designs/demo-board.toml --detail" in " ".join(lines)
+
+
+def test_problem_line_holds_value_limit_margin_and_fix(demo):
+    bus = demo.bus("sensors")
+    seg = next(s for s in bus.segments if s.id == "sensor-1v8")
+    c = seg.check("bridge-gate-drive")
+    text = problem_line(bus, seg.id, None, c)
+    # 210 mV overdrive against the 0 V failing limit (common practice, no source: the
+    # demo's translator class, low rail 1.71 V − threshold 1.5 V)
+    assert text.startswith("WARN sensors/sensor-1v8 Q1: Translator gate drive 210 mV")
+    assert "limit ≥ 0 V" in text and "margin +210 mV" in text
+    assert text.endswith("; fix: " + c.fix)
+
+
+def test_bus_lines_carry_the_figures_of_their_protocol(demo):
+    i2c = bus_line(demo.bus("power"))
+    for words in ("Cb 77.7 pF", "Rp 766 Ω…30.7 kΩ", "chosen 4.7 kΩ", "tr 154 ns"):
+        assert words in i2c  # figures as the engine returned them, 3 digits
+    spi = bus_line(demo.bus("flash"))
+    assert "max clock 24 MHz (set by f_max U1)" in spi and "worst margin" in spi
+
+
+def test_quiet_prints_only_problems(monkeypatch, capsys):
+    _, out = _run(monkeypatch, capsys, 80, "--quiet")
+    lines = out.splitlines()
+    assert lines[0].startswith("WARN sensors/sensor-1v8 Q1")
+    assert not any(ln.startswith("PASS") for ln in lines)
+    assert CAUTION_LINE not in out
+
+
+def test_quiet_all_pass_prints_the_summary_line(tmp_path, monkeypatch, capsys):
+    board = (ROOT / DEMO_ARG).read_text(encoding="utf-8")
+    # the demo without its 1.8 V segment's translator warning: only the SMBus bus kept
+    design = tmp_path / "power.toml"
+    text = board.split("\n[[bus]]")[0]
+    power = [b for b in board.split("\n[[bus]]")[1:] if 'protocol = "smbus"' in b]
+    design.write_text(text + "\n[[bus]]" + power[0], encoding="utf-8")
+    monkeypatch.setenv("COLUMNS", "80")
+    assert main(["check", str(design), "--quiet"]) == 0
+    out = capsys.readouterr().out
+    assert len(out.splitlines()) <= 2 and out.startswith("PASS ")
+    assert "0 warn, 0 fail on 1 bus" in out
+
+
+def test_detail_shows_every_check_and_each_figure_once(monkeypatch, capsys, demo):
+    _, out = _run(monkeypatch, capsys, 120, "--detail")
+    n = sum(1 for b in demo.buses for _ in b.all_checks())
+    rows = [ln for ln in out.splitlines() if re.match(r"\s+(PASS|WARN|FAIL)\s{2,}\S", ln)]
+    assert len(rows) == n
+    # pullup = pullup_resistor = pullup_sda = pullup_scl on main-3v3: one row, the resistor
+    seg = out.split("segment main-3v3")[1].split("segment sensor-1v8")[0]
+    assert seg.count("Pull-up resistor") == 1 and "Pull-up, effective" not in seg
+    assert "Bus capacitance Cb, SDA" not in seg
+    # a note shared by the lines of an SPI bus is printed once for the bus
+    flash = out.split("bus flash (SPI)")[1].split("bus display")[0]
+    assert flash.count("distributed model: one lumped capacitance") == 1
+    # every source once per bus, numbered
+    assert flash.count("mcu-3v3 supply (typical of the class (common practice))") == 1
+
+
+def test_detail_keeps_units_labels_and_sources(monkeypatch, capsys):
+    _, out = _run(monkeypatch, capsys, 80, "--detail")
+    assert out.startswith("Caution: pinlib's figures are estimates")
+    assert "Rp(min)" in out and "Bus capacitance Cb" in out and "rp_min " not in out
+    assert "UM10204 rev. 6, table 10" in out
+
+
+def test_no_escape_codes_off_a_terminal_or_with_no_color(monkeypatch, capsys, demo):
+    _, out = _run(monkeypatch, capsys, 80)
+    assert ESC not in out  # capsys is not a terminal
+
+    class Tty(io.StringIO):
+        def isatty(self):
+            return True
+
+    args = type("Args", (), {"detail": False, "quiet": False})()
+    monkeypatch.delenv("NO_COLOR", raising=False)
+    coloured = render_text(demo, args, stream=Tty())
+    assert ESC in coloured and "\x1b[33mWARN\x1b[0m" in coloured
+    monkeypatch.setenv("NO_COLOR", "1")
+    assert ESC not in render_text(demo, args, stream=Tty())
+    monkeypatch.setenv("NO_COLOR", "")  # empty: the convention says colour stays on
+    assert use_colour(Tty())
+
+
+def test_colour_does_not_change_the_layout(demo):
+    plain = format_text(demo, width=80)
+    coloured = format_text(demo, width=80, colour=True)
+    assert re.sub(r"\x1b\[[0-9;]*m", "", coloured) == plain
+
+
+def test_width_honours_columns(monkeypatch):
+    monkeypatch.setenv("COLUMNS", "132")
+    assert width() == 132
+    monkeypatch.setenv("COLUMNS", "10")
+    assert width() == 40  # the narrowest layout
+    monkeypatch.delenv("COLUMNS")
+    assert width() >= 40
+
+
+def test_wrap_keeps_a_number_with_its_unit():
+    lines = wrap("a b c rise time 242 ns over the limit", 18)
+    assert all(len(ln) <= 18 for ln in lines)
+    assert any("242 ns" in ln for ln in lines)
+    assert status_word("fail") == "FAIL" and status_word("fail", True).startswith(ESC)
+
+
+def test_unknown_mode_is_refused(demo):
+    with pytest.raises(ValueError):
+        format_text(demo, mode="loud")
+
+
+def test_readme_tour_shows_the_current_default_output():
+    readme = (ROOT / "README.md").read_text(encoding="utf-8")
+    sample = (GOLDEN / "demo-80.txt").read_text(encoding="utf-8")
+    assert f"```text\n{sample}```" in readme
+
+
+def test_a_check_without_a_value_gives_its_reason_on_its_line(monkeypatch, capsys):
+    # a 3.3 V flash answering a 5 V controller: CIPO never reaches VIH, so the CIPO
+    # setup time does not exist (test data, invented; see tests/test_pp_limits.py)
+    monkeypatch.setenv("COLUMNS", "200")
+    assert main(["check", str(ROOT / "tests" / "data" / "spi-cipo-never-high.toml")]) == 1
+    out = capsys.readouterr().out
+    line = next(ln for ln in out.splitlines() if ": CIPO setup: " in ln)
+    assert line.startswith("FAIL flash U2") and "never crosses" in line and "fix: " in line
+    assert "max clock — (not computed" in out
+    assert not re.search(r"\bnan\b|\binf\b|∞", out, re.IGNORECASE)
