@@ -599,3 +599,24 @@ def test_cli_check_help_lists_the_new_options(capsys):
     for opt in ("--monte-carlo", "--seed", "--corners", "--save", "--threshold", "--json"):
         assert opt in out
     assert "pinlib check board.toml --monte-carlo 100000 --seed 7" in out
+
+
+def test_the_corners_bar_counts_corner_boards(monkeypatch):
+    # the bar waits on corner boards, not buses: every board the search evaluates is
+    # counted once, and the count is not known in advance (total None)
+    from pinlib.engines.opendrain import batch as ob
+
+    d = load_design(DEMO)
+    boards = []
+    build = ob.build
+
+    def counted(bus, design, scen, **kw):
+        boards.append(scen.n)
+        return build(bus, design, scen, **kw)
+
+    monkeypatch.setattr(whatif.cornersearch.ob, "build", counted)
+    seen = []
+    whatif.corners(d, progress=lambda done, total: seen.append((done, total)))
+    assert seen and all(total is None for _, total in seen)
+    assert seen[-1][0] > len(d.buses)              # more than one unit per bus
+    assert sum(boards) <= seen[-1][0]              # every open-drain board is counted

@@ -45,9 +45,9 @@ class Progress:
     context manager, or call :meth:`close` when the work ends.
     """
 
-    def __init__(self, total: int, *, bar=None,
-                 callback: Callable[[int, int], object] | None = None):
-        self.total, self.done = int(total), 0
+    def __init__(self, total: int | None, *, bar=None,
+                 callback: Callable[[int, int | None], object] | None = None):
+        self.total, self.done = (None if total is None else int(total)), 0
         self._bar, self._callback = bar, callback
 
     @property
@@ -74,13 +74,14 @@ class Progress:
         self.close()
 
 
-def progress_bar(total: int, *, desc: str, unit: str = "it", enabled=None) -> Progress:
+def progress_bar(total: int | None, *, desc: str, unit: str = "it", enabled=None) -> Progress:
     """A progress bar over ``total`` units of work.
 
     Parameters
     ----------
-    total : int
-        Units of work (samples, candidate parts). [1]
+    total : int or None
+        Units of work (samples, candidate parts); None where the count is not known in
+        advance (the bar then shows the units done and their rate). [1]
     desc : str
         What is being done, shown before the bar. [1]
     unit : str, optional

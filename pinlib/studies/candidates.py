@@ -452,8 +452,10 @@ def rank_candidates(design: Design, ref: str, *, categories=None, progress=None)
     table = _Summaries(design, ref, parts, places, slow_buses)
     table.notes += _one_at_a_time_notes(places, fast_buses)
     collected = {bus.id: od.collect(bus, design) for bus in fast_buses}
-    with progress_bar(len(parts) * len(places), desc=f"candidates for {ref}", unit="part",
-                      enabled=progress) as bar:
+    # a unit is one part tried at one position (a part that stands at two places counts
+    # twice)
+    with progress_bar(len(parts) * len(places), desc=f"candidates for {ref}",
+                      unit="part-position", enabled=progress) as bar:
         for bus in fast_buses:
             table.add_fast_bus(bus, collected[bus.id], bar)
         if slow_buses:

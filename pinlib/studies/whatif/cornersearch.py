@@ -145,7 +145,7 @@ def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
         (:func:`pinlib.engines.ppworst.search`), so that its corners and its checks'
         statuses agree. [1]
     progress : bool, callable or None, optional
-        Progress bar over the buses. [1]
+        Progress bar over the corner boards evaluated. [1]
 
     Returns
     -------
@@ -157,7 +157,9 @@ def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
     collected = _collected(design)
     out, methods, per_bus = [], {}, {}
     sampled = [b for b in design.buses if b.id in collected or b.protocol in PUSH_PULL_PROTOCOLS]
-    bar = progress_bar(len(sampled), desc="corners", unit="bus", enabled=progress)
+    # the bar counts the corner boards evaluated: how many a search takes is known only
+    # as it goes (a screened search stops when no flip improves)
+    bar = progress_bar(None, desc="corners", unit="corner", enabled=progress)
     with bar:
         for bus in sampled:
             params = parameters(design, bus=bus.id, collected=collected)
@@ -165,6 +167,7 @@ def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
             k = len(params)
 
             def run(u, bus=bus, params=params):
+                bar.update(len(u))
                 scen = Sampled(u, params)
                 if bus.protocol in PUSH_PULL_PROTOCOLS:
                     return ppb.build(bus, design, scen.factors(bus), scen.n,
@@ -209,7 +212,6 @@ def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
                     None if c.limit is None else float(c.limit[j]),
                     ob.STATUS[int(c.status[j])], corner,
                     ec.status if ec is not None else None, ec.margin if ec is not None else None))
-            bar.update(1)
     return CornersResult(design.title, out, methods, per_bus,
                          _not_sampled(design, "no corners"))
 
