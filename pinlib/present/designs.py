@@ -1,0 +1,59 @@
+"""Text of ``pinlib check`` over many designs: one line per design, a closing count, and
+(with ``--against-snapshots``) what moved since each design's snapshot."""
+
+from __future__ import annotations
+
+from pinlib.core import messages as M
+
+__all__ = ["summary_line", "format_many", "format_uses"]
+
+_WORDS = {"pass": "PASS", "warn": "WARN", "fail": "FAIL", "error": "ERROR"}
+
+
+def summary_line(s, width: int) -> str:
+    """One design: status, path, then its counts and title, or why it was not checked."""
+    head = f"{_WORDS.get(s.status, s.status.upper()):<6}{s.path:<{width}}  "
+    if s.error is not None:
+        return head + M.DESIGN_NOT_LOADED.format(path=s.path, message=s.error) \
+            .removeprefix(f"{s.path}: ")
+    c = s.counts
+    return head + f"{c['pass']} pass, {c['warn']} warn, {c['fail']} fail — {s.title}"
+
+
+def _snapshot_lines(s) -> list[str]:
+    if s.snapshot is None or s.error is not None:
+        return []
+    if s.snapshot == "compared":
+        return ["    " + line if line else "" for line in s.changes_text.rstrip().splitlines()]
+    out = ["    no snapshot to compare with (pinlib check DESIGN --save keeps one)"]
+    out += [f"    warning: {n}" for n in s.notes]
+    return out
+
+
+def format_many(summaries) -> str:
+    """Every design's line (and snapshot changes), then the counts of designs."""
+    width = max(len(s.path) for s in summaries)
+    out = []
+    for s in summaries:
+        out.append(summary_line(s, width).rstrip())
+        out += _snapshot_lines(s)
+    counts = {k: sum(1 for s in summaries if s.status == k)
+              for k in ("pass", "warn", "fail", "error")}
+    n = len(summaries)
+    out.append("")
+    out.append(f"{n} design{'s' if n != 1 else ''}: {counts['pass']} pass, "
+               f"{counts['warn']} warn, {counts['fail']} fail, {counts['error']} not checked; "
+               "'pinlib check DESIGN' shows one in full")
+    return "\n".join(out) + "\n"
+
+
+def format_uses(part_id: str, uses: list[dict], n_designs: int) -> str:
+    """``pinlib parts used-by``: one line a position, then the counts."""
+    out = []
+    for u in uses:
+        via = "" if len(u["via"]) == 1 else "  (" + " → ".join(u["via"]) + ")"
+        out.append(f"{u['path']}  bus {u['bus']}  {u['ref']}  {u['part']}{via}")
+    found = len({u["path"] for u in uses})
+    out.append(f"{part_id}: {len(uses)} position{'s' if len(uses) != 1 else ''} in {found} "
+               f"of {n_designs} design{'s' if n_designs != 1 else ''}")
+    return "\n".join(out) + "\n"
