@@ -213,3 +213,52 @@ def test_used_by_finds_direct_and_inherited_uses(tmp_path, capsys, monkeypatch):
     assert "U4  eeprom-i2c  (eeprom-i2c → i2c-peripheral)" in out
     assert main(["parts", "used-by", "ribbon-cable", "a.toml"]) == 0
     assert "bus sensors  cable  ribbon-cable" in capsys.readouterr().out
+
+
+# ---------------------------------------------------------------- swap over many designs
+def test_swap_part_over_designs_reports_and_writes_only_what_was_not_refused(
+        tmp_path, capsys, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    a = _board(tmp_path, "a.toml")
+    # in b.toml the part to replace sits where the new one cannot serve: a 5 V-only
+    # expander class is fine, but an SPI flash has no I2C pins
+    b = _board(tmp_path, "b.toml", ('{ ref = "U4", part = "eeprom-i2c" }',
+                                    '{ ref = "U4", part = "rtc-i2c" }'))
+    c = _board(tmp_path, "c.toml", ('{ ref = "U6", part = "io-expander-i2c" }',
+                                    '{ ref = "U6", part = "eeprom-i2c" }'))
+    before = {p: p.read_text(encoding="utf-8") for p in (a, b, c)}
+    code = main(["swap", "--part", "eeprom-i2c=io-expander-legacy-5v", "a.toml", "b.toml",
+                 "--json"])
+    got = json.loads(capsys.readouterr().out)
+    assert code == 1  # the legacy expander fails a Fast-mode check in a.toml
+    rows = {d["path"]: d for d in got["designs"]}
+    assert rows["a.toml"]["status"] == "swapped"
+    assert rows["a.toml"]["positions"] == [{"ref": "U4", "old": "eeprom-i2c",
+                                            "new": "io-expander-legacy-5v"}]
+    assert (rows["a.toml"]["before"], rows["a.toml"]["after"]) == ("warn", "fail")
+    assert rows["a.toml"]["changes"]["status_changes"]
+    assert rows["b.toml"]["status"] == "unused"
+    assert all(p.read_text(encoding="utf-8") == before[p] for p in (a, b, c))  # no --write
+    # an SPI flash cannot serve the I2C positions: refused with reasons, exit 2
+    code = main(["swap", "--part", "eeprom-i2c=nor-flash-spi", "*.toml", "--write"])
+    out = capsys.readouterr().out
+    assert code == 2
+    assert "refused (U4 eeprom-i2c → nor-flash-spi)" in out
+    assert "has no i2c-sda pin" in out
+    assert all(p.read_text(encoding="utf-8") == before[p] for p in (a, b, c))
+    # --write edits the designs that were not refused, only the part line
+    code = main(["swap", "--part", "eeprom-i2c=rtc-i2c", "a.toml", "c.toml", "--write"])
+    out = capsys.readouterr().out
+    assert code in (0, 1) and "written" in out
+    assert a.read_text(encoding="utf-8") == before[a].replace(
+        '{ ref = "U4", part = "eeprom-i2c" }', '{ ref = "U4", part = "rtc-i2c" }')
+    assert '{ ref = "U6", part = "rtc-i2c" }' in c.read_text(encoding="utf-8")
+    assert b.read_text(encoding="utf-8") == before[b]
+
+
+def test_swap_over_designs_refuses_mixed_forms(tmp_path, capsys):
+    a = _board(tmp_path, "a.toml")
+    assert main(["swap", str(a), "U4=rtc-i2c", "--part", "eeprom-i2c=rtc-i2c"]) == 2
+    assert "cannot be mixed" in capsys.readouterr().err
+    assert main(["swap", str(a)]) == 2
+    assert "no substitution given" in capsys.readouterr().err

@@ -1234,6 +1234,22 @@ def _(env):
     return env.cli("parts", "used-by", "no-such-part", str(env.write("a.toml", HEAD + I2C_BUS)))
 
 
+@case("SWAP_NEEDS_SUBSTITUTION")
+def _(env):
+    return env.cli("swap", str(env.write("design.toml", HEAD + I2C_BUS)))
+
+
+@case("SWAP_PART_FORM")
+def _(env):
+    return env.cli("swap", "--part", "U2", str(env.write("design.toml", HEAD + I2C_BUS)))
+
+
+@case("SWAP_FORMS_MIXED")
+def _(env):
+    return env.cli("swap", str(env.write("design.toml", HEAD + I2C_BUS)), "U2=rtc-i2c",
+                   "--part", "eeprom-i2c=rtc-i2c")
+
+
 @case("DESIGN_CHANGED_DURING_SWAP")
 def _(env):
     import pinlib.engines.dispatch

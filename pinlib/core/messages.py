@@ -206,6 +206,9 @@ NOT_A_LIBRARY_PART = "no part of the library has this id"
 DESIGN_NOT_LOADED = "{path}: not checked: {message}"
 SCHEMA_KIND = "no schema of this kind"
 ONE_DESIGN_ONLY = "this option takes one design at a time"
+SWAP_NEEDS_SUBSTITUTION = "no substitution given"
+SWAP_PART_FORM = "a substitution over designs is OLD=NEW (two part ids)"
+SWAP_FORMS_MIXED = "REF=PART and --part OLD=NEW cannot be mixed"
 
 # ---------------------------------------------------------------- engines: plain numbers
 # shared by pinlib/standards/*, pinlib/core/eseries.py and pinlib/physics/*
@@ -463,6 +466,7 @@ MODULES = (
     "pinlib.studies.snapshotcheck",
     "pinlib.studies.candidates",
     "pinlib.studies.whatif",
+    "pinlib.studies.many",
     "pinlib.present.plotdata",
     "pinlib.present.charts",
     "pinlib.present.widgets.common",

@@ -13,10 +13,12 @@ import os
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from pinlib.core.errors import PinlibError
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.progress import progress_bar
 
-__all__ = ["DesignSummary", "check_one", "check_many", "default_jobs", "used_by",
+__all__ = ["DesignSummary", "SwapSummary", "check_one", "check_many", "default_jobs",
+           "swap_in_design", "used_by", "expand_designs",
            "is_design_file"]
 
 
@@ -108,6 +110,24 @@ def _against_snapshot(out: DesignSummary, design, result, threshold) -> None:
     out.snapshot = "compared"
     out.changes = changes.to_json()
     out.changes_text = changes.format_text()
+
+
+def expand_designs(items) -> list[Path]:
+    """The design files named: each item a file, or a glob pattern (``*``, ``?``, ``[``;
+    ``**`` reaches into sub-folders), its matches sorted; each file once, in order."""
+    import glob
+
+    out: dict[Path, None] = {}
+    for item in items:
+        if glob.has_magic(item):
+            found = sorted(glob.glob(item, recursive=True))
+            found = [f for f in found if os.path.isfile(f)]
+            if not found:
+                raise InputError(M.NO_DESIGN_MATCHES, field="DESIGN", value=item)
+            out.update((Path(f), None) for f in found)
+        else:
+            out[Path(item)] = None
+    return list(out)
 
 
 def default_jobs(n_designs: int) -> int:
@@ -214,3 +234,85 @@ def is_design_file(path) -> bool:
     except OSError:
         return False
     return "pinlib.design/1" in head
+
+
+@dataclass
+class SwapSummary:
+    """One design under a substitution of part ids (``{old: new}``) at every position.
+
+    ``status`` is ``swapped`` (evaluated before and after), ``refused`` (a position where
+    the new part cannot serve: ``refused`` holds each position's reasons, nothing is
+    evaluated), ``unused`` (no old part stands in it) or ``error`` (not loaded).
+    ``design`` is the loaded design (for writing the file), not kept in JSON.
+    """
+
+    path: str
+    status: str = "error"
+    title: str | None = None
+    swaps: dict = field(default_factory=dict)        # ref -> new part id
+    olds: dict = field(default_factory=dict)         # ref -> old part id
+    refused: list = field(default_factory=list)      # {ref, old, new, reasons}
+    before: str | None = None                        # statuses of the whole design
+    after: str | None = None
+    changes: object = None                           # a ChangeList
+    error: str | None = None
+    written: bool = False
+    design: object = None
+
+    @property
+    def exit_code(self) -> int:
+        if self.status in ("error", "refused"):
+            return 2
+        return 1 if self.after == "fail" else 0
+
+    def to_json(self) -> dict:
+        out = {"path": self.path, "status": self.status, "design": self.title,
+               "positions": [{"ref": r, "old": self.olds[r], "new": n}
+                             for r, n in self.swaps.items()]}
+        if self.status == "error":
+            out["error"] = self.error
+        if self.refused:
+            out["refused"] = self.refused
+        if self.status == "swapped":
+            out.update(before=self.before, after=self.after, written=self.written,
+                       changes=self.changes.to_json())
+        return out
+
+
+def swap_in_design(path, parts: dict[str, str], library_folders=(),
+                   threshold: float | None = None) -> SwapSummary:
+    """Put ``parts[old]`` at every position of the design where ``old`` stands, when the
+    new part can serve each of them (:func:`pinlib.studies.compare.swap_refusals`), and
+    compare the design's results before and after."""
+    from pinlib.engines.dispatch import check_design
+    from pinlib.model.design import load_design
+    from pinlib.studies.compare import DEFAULT_THRESHOLD, compare, snapshot, swap_refusals
+
+    out = SwapSummary(str(path))
+    try:
+        design = load_design(path, library_folders=list(library_folders))
+        out.title, out.design = design.title, design
+        for bus in design.buses:
+            for d in bus.devices:
+                if d.part_id in parts and d.ref not in out.swaps:
+                    out.swaps[d.ref], out.olds[d.ref] = parts[d.part_id], d.part_id
+        if not out.swaps:
+            out.status = "unused"
+            return out
+        for ref, new in out.swaps.items():
+            old, reasons = swap_refusals(design, ref, new, field="--part")
+            if reasons:
+                out.refused.append({"ref": ref, "old": old, "new": new, "reasons": reasons})
+        if out.refused:
+            out.status = "refused"
+            return out
+        before = check_design(design)
+        after_design = design.with_parts(out.swaps)
+        after = check_design(after_design)
+    except PinlibError as err:
+        out.status, out.error = "error", err.message
+        return out
+    out.status, out.before, out.after = "swapped", before.status, after.status
+    out.changes = compare(snapshot(design, before), snapshot(after_design, after),
+                          threshold=DEFAULT_THRESHOLD if threshold is None else threshold)
+    return out

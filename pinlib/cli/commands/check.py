@@ -4,9 +4,7 @@ from __future__ import annotations
 
 import argparse
 import json
-import os
 import sys
-from pathlib import Path
 
 from pinlib.core import messages as M
 
@@ -104,31 +102,13 @@ def seed_type(text):
 def run(args) -> int:
     """One design: the full report, as always; several (or a pattern matching several):
     one line per design."""
+    from pinlib.studies.many import expand_designs
+
     paths = expand_designs(args.designs)
     if len(paths) == 1 and not args.against_snapshots:
         args.design = str(paths[0])
         return _run_one(args)
     return _run_many(args, paths)
-
-
-def expand_designs(items) -> list[Path]:
-    """The design files named: each item a file, or a glob pattern (``*``, ``?``, ``[``;
-    ``**`` reaches into sub-folders), its matches sorted; each file once, in order."""
-    import glob
-
-    from pinlib.core.errors import InputError
-
-    out: dict[Path, None] = {}
-    for item in items:
-        if glob.has_magic(item):
-            found = sorted(glob.glob(item, recursive=True))
-            found = [f for f in found if os.path.isfile(f)]
-            if not found:
-                raise InputError(M.NO_DESIGN_MATCHES, field="DESIGN", value=item)
-            out.update((Path(f), None) for f in found)
-        else:
-            out[Path(item)] = None
-    return list(out)
 
 
 def _run_many(args, paths) -> int:

@@ -582,10 +582,9 @@ def _run_schema(args) -> int:
 # --- used-by ---------------------------------------------------------------------------
 
 def _run_used_by(args) -> int:
-    from pinlib.cli.commands.check import expand_designs
     from pinlib.core.errors import InputError
     from pinlib.present.designs import format_uses
-    from pinlib.studies.many import is_design_file, used_by
+    from pinlib.studies.many import expand_designs, is_design_file, used_by
 
     lib = _load(args)
     if args.id not in lib.files:
