@@ -169,13 +169,27 @@ def check_many(paths, library_folders=(), *, jobs: int | None = None,
     # fit store, and import nothing again); the pool starts before the bar's thread does.
     methods = multiprocessing.get_all_start_methods()
     context = multiprocessing.get_context("fork" if "fork" in methods else None)
-    with ProcessPoolExecutor(max_workers=jobs, mp_context=context) as pool:
+    pool = ProcessPoolExecutor(max_workers=jobs, mp_context=context,
+                               initializer=_worker_ignores_ctrl_c)
+    try:
         futures = {pool.submit(check_one, p, *args): i for i, p in enumerate(paths)}
         with progress_bar(len(paths), desc="designs", unit="design", enabled=progress) as bar:
             for fut in as_completed(futures):
                 out[futures[fut]] = fut.result()
                 bar.update()
+    except BaseException:
+        # Ctrl-C (or a worker lost): the designs not started are dropped, not waited for.
+        pool.shutdown(wait=False, cancel_futures=True)
+        raise
+    pool.shutdown()
     return out  # type: ignore[return-value]
+
+
+def _worker_ignores_ctrl_c() -> None:
+    """A worker leaves Ctrl-C to the command (one line, exit 130), which stops the pool."""
+    import signal
+
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
 
 
 def used_by(part_id: str, paths, library_folders=()) -> tuple[list[dict], list[dict]]:
