@@ -262,3 +262,13 @@ def test_swap_over_designs_refuses_mixed_forms(tmp_path, capsys):
     assert "cannot be mixed" in capsys.readouterr().err
     assert main(["swap", str(a)]) == 2
     assert "no substitution given" in capsys.readouterr().err
+
+
+def test_new_writes_any_title_and_reference_as_valid_toml(tmp_path):
+    path = tmp_path / "odd.toml"
+    title = 'A "quoted" title \\ with a back-slash,\na new line and a tab\t'
+    assert main(["new", str(path), "--part", 'U"1=mcu-3v3', "--part", "U2=eeprom-i2c",
+                 "--title", title]) == 0
+    design = load_design(path)
+    assert design.title == title
+    assert {d.ref for d in design.buses[0].devices} == {'U"1', "U2"}

@@ -11,6 +11,7 @@ the file says so beside each one, and it loads and checks as it is.
 
 from __future__ import annotations
 
+import json
 from dataclasses import dataclass
 
 from pinlib.core import protocols
@@ -30,6 +31,12 @@ class Placement:
 
     ref: str
     part_id: str
+
+
+def _toml_string(text: str) -> str:
+    """``text`` as a TOML basic string (JSON's escapes are TOML's, and json.dumps writes
+    no ``\\/``)."""
+    return json.dumps(text, ensure_ascii=False)
 
 
 def _serves(part, proto) -> list[str]:
@@ -66,7 +73,7 @@ def _device_lines(members, controller) -> list[str]:
     out = ["devices = ["]
     for place, _part in members:
         role = ', role = "controller"' if place is controller else ""
-        out.append(f'  {{ ref = "{place.ref}", part = "{place.part_id}"{role} }},')
+        out.append(f'  {{ ref = {_toml_string(place.ref)}, part = "{place.part_id}"{role} }},')
     out.append("]")
     return out
 
@@ -123,11 +130,10 @@ def starter_text(title: str, placed: list[tuple[Placement, object]]) -> tuple[st
         traces, and the parts that went on no bus named in a comment; and the number
         of buses it holds.
     """
-    title_text = title.replace("\\", "\\\\").replace('"', '\\"')
     out = ["# A starter design written by 'pinlib new': every length, rail and clock below is",
            "# a placeholder to replace with your board's own.  Check it with",
            "#   pinlib check THIS-FILE",
-           'format = "pinlib.design/1"', f'title = "{title_text}"', "",
+           'format = "pinlib.design/1"', f"title = {_toml_string(title)}", "",
            "# An example outer-layer trace over FR-4: put your board's stack-up here.",
            "[board.geometry.outer]"]
     out += [f"{k} = {v!r}".replace("'", '"') for k, v in STARTER_GEOMETRY.items()]
