@@ -582,7 +582,6 @@ def _run_schema(args) -> int:
 # --- used-by ---------------------------------------------------------------------------
 
 def _run_used_by(args) -> int:
-    from pinlib.core.errors import InputError
     from pinlib.present.designs import format_uses
     from pinlib.studies.many import expand_designs, is_design_file, used_by
 
