@@ -15,7 +15,7 @@ setup(
     packages=[*find_packages(include=["pinlib", "pinlib.*"]), "pinlib.workbooks"],
     package_dir={"pinlib.workbooks": "workbooks"},
     package_data={
-        "pinlib": ["devices/*/*.toml"],
+        "pinlib": ["devices/*/*.toml", "model/design.schema.json"],
         "pinlib.workbooks": ["*.ipynb", "designs/*.toml"],
     },
     include_package_data=False,

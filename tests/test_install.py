@@ -129,11 +129,17 @@ def test_the_wheel_carries_the_code_the_library_and_the_workbooks(installed):
     assert code <= names, sorted(code - names)  # a folder without __init__.py is left out
     parts = {p.relative_to(ROOT).as_posix() for p in (ROOT / "pinlib" / "devices").rglob("*.toml")}
     assert parts and parts <= names, sorted(parts - names)
+    assert "pinlib/model/design.schema.json" in names  # printed by `pinlib schema design`
     # setup.py's package data and demo.PATTERNS name the same files
     shipped = {n.removeprefix("pinlib/workbooks/") for n in names
                if n.startswith("pinlib/workbooks/")}
     wanted = {p.as_posix() for p in demo.demo_files(ROOT / "workbooks")}
     assert shipped == wanted
+
+
+def test_schema_design_prints_the_shipped_schema(installed):
+    proc = _checked(installed.pinlib("schema", "design"), "pinlib schema design")
+    assert json.loads(proc.stdout)["title"].startswith("pinlib design file")
 
 
 def test_parts_list_finds_the_built_in_library_in_site_packages(installed):

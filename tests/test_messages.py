@@ -1189,6 +1189,74 @@ def _(env):
                    "U2=adc-i2c")
 
 
+@case("PLACEMENT_FORM")
+def _(env):
+    return env.cli("new", str(env.tmp / "new.toml"), "--part", "U1")
+
+
+@case("REF_PLACED_TWICE")
+def _(env):
+    return env.cli("new", str(env.tmp / "new.toml"), "--part", "U1=mcu-3v3",
+                   "--part", "U1=eeprom-i2c")
+
+
+@case("NEW_FILE_EXISTS")
+def _(env):
+    path = env.write("new.toml", "# kept\n")
+    return env.cli("new", str(path), "--part", "U1=mcu-3v3", "--part", "U2=eeprom-i2c")
+
+
+@case("NO_BUS_FOR_PARTS")
+def _(env):
+    return env.cli("new", str(env.tmp / "new.toml"), "--part", "U1=eeprom-i2c",
+                   "--part", "U2=nor-flash-spi")
+
+
+@case("SCHEMA_KIND")
+def _(env):
+    return env.cli("schema", "board")
+
+
+@case("NO_DESIGN_MATCHES")
+def _(env):
+    return env.cli("check", str(env.tmp / "boards" / "*.toml"))
+
+
+@case("DESIGN_NOT_LOADED", lambda: M.DESIGN_NOT_LOADED.format(path="bad.toml", message=""))
+def _(env):
+    env.write("good.toml", HEAD + I2C_BUS)
+    env.write("bad.toml", "title = 3\n")
+    env.monkeypatch.chdir(env.tmp)
+    return env.cli("check", "good.toml", "bad.toml", "--jobs", "1")
+
+
+@case("ONE_DESIGN_ONLY")
+def _(env):
+    a = env.write("a.toml", HEAD + I2C_BUS)
+    return env.cli("check", str(a), str(a.with_name("b.toml")), "--corners")
+
+
+@case("NOT_A_LIBRARY_PART")
+def _(env):
+    return env.cli("parts", "used-by", "no-such-part", str(env.write("a.toml", HEAD + I2C_BUS)))
+
+
+@case("SWAP_NEEDS_SUBSTITUTION")
+def _(env):
+    return env.cli("swap", str(env.write("design.toml", HEAD + I2C_BUS)))
+
+
+@case("SWAP_PART_FORM")
+def _(env):
+    return env.cli("swap", "--part", "U2", str(env.write("design.toml", HEAD + I2C_BUS)))
+
+
+@case("SWAP_FORMS_MIXED")
+def _(env):
+    return env.cli("swap", str(env.write("design.toml", HEAD + I2C_BUS)), "U2=rtc-i2c",
+                   "--part", "eeprom-i2c=rtc-i2c")
+
+
 @case("DESIGN_CHANGED_DURING_SWAP")
 def _(env):
     import pinlib.engines.dispatch

@@ -20,7 +20,8 @@ from pinlib.core.errors import PinlibError
 __all__ = ["main", "entry", "COMMANDS"]
 
 #: Subcommand modules under pinlib.cli.commands, in the order --help lists them.
-COMMANDS = ["check", "report", "swap", "candidates", "measured", "parts", "demo", "workbench"]
+COMMANDS = ["check", "report", "swap", "candidates", "measured", "parts", "new", "schema",
+            "demo", "workbench"]
 
 EPILOG = """\
 examples:

@@ -196,6 +196,21 @@ ABSTRACT_NOT_PLACED = "{part} is an abstract class, meant to be extended, not pl
 CABLE_NOT_PLACED = "{part} is a cable class; it belongs in cables or a line's sections"
 DESIGN_NOT_CHANGED = "{path} was not changed"
 
+# ---------------------------------------------------------------- commands new, schema,
+# check and swap over many designs, parts used-by
+PLACEMENT_FORM = "a placement is REF=PART"
+REF_PLACED_TWICE = "one reference placed twice"
+NEW_FILE_EXISTS = "the file exists; 'pinlib new' does not overwrite a file"
+NO_BUS_FOR_PARTS = "no two of these parts share a protocol, so no bus can be written"
+NO_DESIGN_MATCHES = "no design file matches this pattern"
+NOT_A_LIBRARY_PART = "no part of the library has this id"
+DESIGN_NOT_LOADED = "{path}: not checked: {message}"
+SCHEMA_KIND = "no schema of this kind"
+ONE_DESIGN_ONLY = "this option takes one design at a time"
+SWAP_NEEDS_SUBSTITUTION = "no substitution given"
+SWAP_PART_FORM = "a substitution over designs is OLD=NEW (two part ids)"
+SWAP_FORMS_MIXED = "REF=PART and --part OLD=NEW cannot be mixed"
+
 # ---------------------------------------------------------------- engines: plain numbers
 # shared by pinlib/standards/*, pinlib/core/eseries.py and pinlib/physics/*
 NOT_A_NUMBER = "not a number"
@@ -462,6 +477,7 @@ MODULES = (
     "pinlib.studies.whatif.sensitivity",
     "pinlib.studies.whatif.montecarlo",
     "pinlib.studies.whatif.cornersearch",
+    "pinlib.studies.many",
     "pinlib.present.plotdata",
     "pinlib.present.charts",
     "pinlib.present.widgets.common",
@@ -484,6 +500,8 @@ MODULES = (
     "pinlib.cli.commands.candidates",
     "pinlib.cli.commands.demo",
     "pinlib.cli.commands.workbench",
+    "pinlib.cli.commands.new",
+    "pinlib.cli.commands.schema",
     "pinlib.core.extras",
 )
 

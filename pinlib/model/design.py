@@ -74,8 +74,30 @@ def _unit_validator(unit, lo=None, hi=None):
     return validate
 
 
+class _AsWritten:
+    """What a file writes for a value with a unit (a string; or one of ``words``), for the
+    JSON Schema of design files (:mod:`pinlib.model.designschema`): pydantic would
+    describe the float it becomes.  The pattern is built only when a schema is asked for."""
+
+    def __init__(self, unit: str, words: tuple = ()):
+        self.unit, self.words = unit, words
+
+    def __get_pydantic_json_schema__(self, core_schema, handler):
+        from pinlib.core.quantity import UNITS
+        from pinlib.library.jsonschema import quantity_pattern
+
+        what, example = UNITS[self.unit]
+        text = f"{what}, e.g. '{example}'"
+        string = {"type": "string", "pattern": quantity_pattern(self.unit)}
+        if not self.words:
+            return {**string, "description": text}
+        words = " or ".join(f"'{w}'" for w in self.words)
+        return {"anyOf": [{"enum": list(self.words)}, string],
+                "description": f"{words}, or {text}"}
+
+
 def _unit(unit, lo=None, hi=None):
-    return Annotated[float, BeforeValidator(_unit_validator(unit, lo, hi))]
+    return Annotated[float, BeforeValidator(_unit_validator(unit, lo, hi)), _AsWritten(unit)]
 
 
 def _auto_or(unit, lo=None, hi=None, words=("auto",)):
@@ -88,7 +110,7 @@ def _auto_or(unit, lo=None, hi=None, words=("auto",)):
             return raw.strip().lower()
         return quantity(raw, info)
 
-    return Annotated[str | float, BeforeValidator(validate)]
+    return Annotated[str | float, BeforeValidator(validate), _AsWritten(unit, words)]
 
 
 Length = _unit("m", 0.0, 1000.0)

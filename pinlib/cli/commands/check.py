@@ -53,7 +53,9 @@ def add_parser(sub) -> None:
         epilog=EXAMPLES,
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
-    p.add_argument("design", metavar="DESIGN", help="the design file (.toml)")
+    p.add_argument("designs", metavar="DESIGN", nargs="+",
+                   help="the design file (.toml); several files or glob patterns (quoted: "
+                        "'boards/*.toml', '**' for sub-folders) give one line per design")
     p.add_argument("--json", action="store_true",
                    help="print the result as JSON (format pinlib.result/1)")
     p.add_argument("--library", metavar="DIR", action="append", default=[],
@@ -76,6 +78,12 @@ def add_parser(sub) -> None:
     p.add_argument("--progress", action="store_true",
                    help="show a progress bar even when standard error is not a terminal")
     add_output_options(p)
+    p.add_argument("--jobs", metavar="N", type=samples_type, default=None,
+                   help="with several designs: check them in N processes (default: the "
+                        "machine's cores, at most one per design)")
+    p.add_argument("--against-snapshots", action="store_true", dest="against_snapshots",
+                   help="with several designs: list, per design, what moved since its "
+                        "saved snapshot (pinlib check DESIGN --save)")
     p.set_defaults(run=run)
 
 
@@ -111,6 +119,62 @@ def seed_type(text):
 
 
 def run(args) -> int:
+    """One design: the full report, as always; several (or a pattern matching several):
+    one line per design."""
+    from pinlib.studies.many import expand_designs
+
+    paths = expand_designs(args.designs)
+    if len(paths) == 1 and not args.against_snapshots:
+        args.design = str(paths[0])
+        return _run_one(args)
+    return _run_many(args, paths)
+
+
+def _run_many(args, paths) -> int:
+    """Several designs: each checked on its own (in ``--jobs`` processes), one line each,
+    the worst status as the exit code (2 when a design could not be checked)."""
+    from pinlib.core.errors import InputError
+    from pinlib.studies.many import check_many
+
+    for flag, given in (("--corners", args.corners), ("--monte-carlo", args.monte_carlo),
+                        ("--save", args.save), ("--seed", args.seed is not None)):
+        if given:
+            raise InputError(M.ONE_DESIGN_ONLY, field=flag,
+                             hint="run 'pinlib check DESIGN " + flag + "' on each design")
+    progress = True if args.progress else None
+    summaries = check_many(paths, args.library, jobs=args.jobs,
+                           against_snapshots=args.against_snapshots,
+                           threshold=args.threshold, progress=progress)
+    for s in summaries:
+        if s.error is not None:
+            print("pinlib: error: " + M.DESIGN_NOT_LOADED.format(path=s.path, message=s.error),
+                  file=sys.stderr)
+        for note in s.notes:
+            print(f"pinlib: warning: {s.path}: {note}", file=sys.stderr)
+    if args.json:
+        json.dump([_many_json(s) for s in summaries], sys.stdout, indent=2, ensure_ascii=False)
+        sys.stdout.write("\n")
+    else:
+        from pinlib.present.designs import format_many
+
+        sys.stdout.write(format_many(summaries))
+    return max(s.exit_code for s in summaries)
+
+
+def _many_json(s) -> dict:
+    """One design of ``--json`` over many: its result (pinlib.result/1) with the path, or
+    the error that kept it from being checked; the snapshot changes when asked."""
+    if s.result is None:
+        return {"path": s.path, "status": "error", "error": s.error}
+    out = dict(s.result, path=s.path)
+    if s.snapshot is not None:
+        out["snapshot"] = s.snapshot
+    if s.changes is not None:
+        out["changes"] = s.changes
+    return out
+
+
+def _run_one(args) -> int:
     from pinlib.engines.dispatch import check_design
     from pinlib.model.design import load_design
     from pinlib.studies.snapshotfile import may_have_snapshot

@@ -77,6 +77,11 @@ examples:
 
 Exit code 0 when every file is valid, 1 when any problem is found.
 """,
+    "used-by": """\
+examples:
+  pinlib parts used-by eeprom-i2c boards/*.toml
+  pinlib parts used-by i2c-peripheral            # every design below this folder
+""",
     "schema": """\
 examples:
   pinlib parts schema --output part.schema.json
@@ -140,6 +145,14 @@ def add_parser(subparsers) -> None:
 
     p = action("schema", "print the JSON Schema of part files", _run_schema)
     p.add_argument("--output", metavar="FILE", help="write it to FILE instead")
+
+    p = action("used-by", "list every design position that uses a part or a class it "
+                          "extends", _run_used_by)
+    p.add_argument("id", metavar="ID", help="the part or class id")
+    p.add_argument("designs", metavar="DESIGN", nargs="*",
+                   help="design files or glob patterns (default: '**/*.toml' designs "
+                        "below the current folder)")
+    p.add_argument("--json", action="store_true", help="print JSON instead of lines")
 
     parser.set_defaults(run=lambda args: _no_action(parser))
 
@@ -564,3 +577,28 @@ def _run_schema(args) -> int:
     else:
         sys.stdout.write(text)
     return 0
+
+
+# --- used-by ---------------------------------------------------------------------------
+
+def _run_used_by(args) -> int:
+    from pinlib.present.designs import format_uses
+    from pinlib.studies.many import expand_designs, is_design_file, used_by
+
+    lib = _load(args)
+    if args.id not in lib.files:
+        near = lib.closest(args.id)
+        raise InputError(M.NOT_A_LIBRARY_PART, field="ID", value=args.id,
+                         hint=("closest: " + ", ".join(near)) if near else None)
+    paths = expand_designs(args.designs or ["**/*.toml"])
+    paths = paths if args.designs else [p for p in paths if is_design_file(p)]
+    uses, errors = used_by(args.id, paths, args.library)
+    for e in errors:
+        print("pinlib: error: " + M.DESIGN_NOT_LOADED.format(path=e["path"], message=e["error"]),
+              file=sys.stderr)
+    if args.json:
+        out = {"part": args.id, "uses": uses, "errors": errors}
+        sys.stdout.write(json.dumps(out, indent=2, ensure_ascii=False) + "\n")
+    else:
+        sys.stdout.write(format_uses(args.id, uses, len(paths)))
+    return 2 if errors else 0

@@ -27,6 +27,8 @@ examples:
   pinlib swap board.toml U4=eeprom-hicap U7=nor-flash-spi --threshold 2%
   pinlib swap board.toml U4=eeprom-hicap --library ./parts --write
   pinlib swap board.toml U4=eeprom-hicap --json > swap.json
+  pinlib swap --part eeprom-i2c=eeprom-hicap 'boards/*.toml'
+  pinlib swap --part eeprom-i2c=eeprom-hicap 'boards/*.toml' --write
 
 The text lists what changed: checks whose status changed, figures that moved by more
 than the threshold (5 % unless --threshold) and the part values behind them; --detail
@@ -66,8 +68,12 @@ def add_parser(sub) -> None:
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("design", metavar="DESIGN", help="the design file (.toml)")
-    p.add_argument("swaps", metavar="REF=PART", nargs="+",
-                   help="a reference designator and the part id to put there")
+    p.add_argument("swaps", metavar="REF=PART", nargs="*",
+                   help="a reference designator and the part id to put there; with --part, "
+                        "more design files or glob patterns instead")
+    p.add_argument("--part", metavar="OLD=NEW", action="append", default=[], dest="parts",
+                   help="put part NEW at every position where part OLD stands, in every "
+                        "design given (repeatable); one line of changes per design")
     p.add_argument("--write", action="store_true",
                    help="edit the design file in place after a successful evaluation")
     p.add_argument("--json", action="store_true",
@@ -142,6 +148,14 @@ def run(args) -> int:
     from pinlib.model.result import CAUTION
     from pinlib.studies.compare import DEFAULT_THRESHOLD, compare, figure_rows, snapshot
 
+    if args.parts:
+        return _run_many(args)
+    if not args.swaps:
+        from pinlib.core.errors import InputError
+
+        raise InputError(M.SWAP_NEEDS_SUBSTITUTION, field="REF=PART",
+                         hint="e.g. pinlib swap board.toml U4=eeprom-i2c, or "
+                              "pinlib swap --part OLD=NEW DESIGN...")
     threshold = DEFAULT_THRESHOLD if args.threshold is None else args.threshold
     swaps = parse_assignments(args.swaps)
     design = load_design(args.design, library_folders=args.library)
@@ -311,3 +325,62 @@ def _text(design, swap_rows, rows, before, after, changes, detail=False) -> list
                    "after: --detail)")
     out.append("")
     return out
+
+
+# --- one substitution over many designs -------------------------------------------------
+
+def parse_part_pairs(items) -> dict[str, str]:
+    """``["eeprom-i2c=eeprom-hicap", ...]`` -> ``{"eeprom-i2c": "eeprom-hicap"}``."""
+    from pinlib.core.errors import InputError
+
+    out: dict[str, str] = {}
+    for item in items:
+        m = _PAIR.match(item)
+        if not m:
+            raise InputError(M.SWAP_PART_FORM, field="--part", value=item,
+                             expected="e.g. eeprom-i2c=eeprom-hicap")
+        old, new = m.groups()
+        if old in out and out[old] != new:
+            raise InputError(M.SUBSTITUTED_TWICE, field="--part", value=old,
+                             hint=f"{out[old]} and {new}")
+        out[old] = new
+    return out
+
+
+_PAIR = re.compile(r"^\s*([a-z0-9][a-z0-9-]*)\s*=\s*([a-z0-9][a-z0-9-]*)\s*$")
+
+
+def _run_many(args) -> int:
+    """``--part OLD=NEW DESIGN...``: each design on its own; refused designs are named with
+    the reasons at each position and (with --write) left as they are."""
+    import os
+
+    from pinlib.core.errors import InputError, PinlibError
+    from pinlib.present.designs import format_swaps
+    from pinlib.studies.many import expand_designs, swap_in_design
+
+    parts = parse_part_pairs(args.parts)
+    items = [args.design, *args.swaps]
+    for item in items:
+        if _ASSIGN.match(item) and not os.path.exists(item):
+            raise InputError(M.SWAP_FORMS_MIXED, field="REF=PART", value=item,
+                             hint="give designs after --part OLD=NEW, or REF=PART without it")
+    summaries = [swap_in_design(p, parts, args.library, args.threshold)
+                 for p in expand_designs(items)]
+    for s in summaries:
+        if s.status == "swapped" and args.write:
+            try:
+                s.written = _write(s.design, s.swaps)
+            except PinlibError as err:
+                s.status, s.error = "error", err.message
+        if s.error is not None:
+            print("pinlib: error: " + M.DESIGN_NOT_LOADED.format(path=s.path, message=s.error),
+                  file=sys.stderr)
+    if args.json:
+        json.dump({"format": "pinlib.swaps/1", "parts": parts, "write": args.write,
+                   "designs": [s.to_json() for s in summaries]},
+                  sys.stdout, indent=2, ensure_ascii=False)
+        sys.stdout.write("\n")
+    else:
+        sys.stdout.write(format_swaps(summaries, parts, write=args.write))
+    return max(s.exit_code for s in summaries)

@@ -1,0 +1,101 @@
+"""Text of ``pinlib check`` over many designs: one line per design, a closing count, and
+(with ``--against-snapshots``) what moved since each design's snapshot."""
+
+from __future__ import annotations
+
+from pinlib.core import messages as M
+
+__all__ = ["summary_line", "format_many", "format_uses", "format_swaps"]
+
+_WORDS = {"pass": "PASS", "warn": "WARN", "fail": "FAIL", "error": "ERROR"}
+
+
+def summary_line(s, width: int) -> str:
+    """One design: status, path, then its counts and title, or why it was not checked."""
+    head = f"{_WORDS.get(s.status, s.status.upper()):<6}{s.path:<{width}}  "
+    if s.error is not None:
+        return head + M.DESIGN_NOT_LOADED.format(path=s.path, message=s.error) \
+            .removeprefix(f"{s.path}: ")
+    c = s.counts
+    return head + f"{c['pass']} pass, {c['warn']} warn, {c['fail']} fail — {s.title}"
+
+
+def _snapshot_lines(s) -> list[str]:
+    if s.snapshot is None or s.error is not None:
+        return []
+    if s.snapshot == "compared":
+        return ["    " + line if line else "" for line in s.changes_text.rstrip().splitlines()]
+    out = ["    no snapshot to compare with (pinlib check DESIGN --save keeps one)"]
+    out += [f"    warning: {n}" for n in s.notes]
+    return out
+
+
+def format_many(summaries) -> str:
+    """Every design's line (and snapshot changes), then the counts of designs."""
+    width = max(len(s.path) for s in summaries)
+    out = []
+    for s in summaries:
+        out.append(summary_line(s, width).rstrip())
+        out += _snapshot_lines(s)
+    counts = {k: sum(1 for s in summaries if s.status == k)
+              for k in ("pass", "warn", "fail", "error")}
+    n = len(summaries)
+    out.append("")
+    out.append(f"{n} design{'s' if n != 1 else ''}: {counts['pass']} pass, "
+               f"{counts['warn']} warn, {counts['fail']} fail, {counts['error']} not checked; "
+               "'pinlib check DESIGN' shows one in full")
+    return "\n".join(out) + "\n"
+
+
+def format_uses(part_id: str, uses: list[dict], n_designs: int) -> str:
+    """``pinlib parts used-by``: one line a position, then the counts."""
+    out = []
+    for u in uses:
+        via = "" if len(u["via"]) == 1 else "  (" + " → ".join(u["via"]) + ")"
+        out.append(f"{u['path']}  bus {u['bus']}  {u['ref']}  {u['part']}{via}")
+    found = len({u["path"] for u in uses})
+    out.append(f"{part_id}: {len(uses)} position{'s' if len(uses) != 1 else ''} in {found} "
+               f"of {n_designs} design{'s' if n_designs != 1 else ''}")
+    return "\n".join(out) + "\n"
+
+
+def _swap_lines(s, width: int) -> list[str]:
+    head = f"{s.path:<{width}}  "
+    if s.status == "error":
+        return [head + M.DESIGN_NOT_LOADED.format(path=s.path, message=s.error)
+                .removeprefix(f"{s.path}: ")]
+    if s.status == "unused":
+        return [head + "no position to change"]
+    where = ", ".join(f"{r} {s.olds[r]} → {n}" for r, n in s.swaps.items())
+    if s.status == "refused":
+        out = [head + f"refused ({where}); not changed"]
+        for r in s.refused:
+            out += [f"    {r['ref']}: {reason}" for reason in r["reasons"]]
+        return out
+    c = s.changes
+    moved = (f"{len(c.status_changes)} check(s) changed status, "
+             f"{len(c.figure_changes)} figure(s) moved")
+    written = "; written" if s.written else ""
+    out = [head + f"{s.before.upper()} → {s.after.upper()}  {where}; {moved}{written}"]
+    out += ["    " + ch.format() for ch in c.status_changes]
+    return out
+
+
+def format_swaps(summaries, parts: dict, *, write: bool) -> str:
+    """``pinlib swap --part OLD=NEW DESIGN...``: a line per design (and the checks whose
+    status changed, or the reasons for a refusal), then the counts."""
+    width = max(len(s.path) for s in summaries)
+    pairs = ", ".join(f"{o} → {n}" for o, n in parts.items())
+    out = [f"Substitution: {pairs}", ""]
+    for s in summaries:
+        out += _swap_lines(s, width)
+    n = {k: sum(1 for s in summaries if s.status == k)
+         for k in ("swapped", "refused", "unused", "error")}
+    failing = sum(1 for s in summaries if s.status == "swapped" and s.after == "fail")
+    out.append("")
+    tail = ("" if write or not n["swapped"]
+            else "; add --write to edit the files that were not refused")
+    out.append(f"{len(summaries)} design(s): {n['swapped']} changed ({failing} failing after), "
+               f"{n['refused']} refused, {n['unused']} without the part, "
+               f"{n['error']} not checked{tail}")
+    return "\n".join(out) + "\n"

@@ -1,0 +1,274 @@
+"""The commands for a team's many designs: ``pinlib new``, ``pinlib schema``, ``pinlib
+check`` over many designs, ``pinlib parts used-by``."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import pytest
+
+from pinlib.cli import main
+from pinlib.core.tomlfile import tomllib
+from pinlib.engines.dispatch import check_design
+from pinlib.model.design import load_design
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"
+DESIGNS = sorted([DEMO, *(ROOT / "tests" / "data").glob("*.toml"),
+                  *(ROOT / "tests" / "golden" / "designs").glob("*.toml")])
+
+
+@pytest.fixture(autouse=True)
+def _no_env_library(monkeypatch):
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+
+
+# ---------------------------------------------------------------- pinlib new
+def test_new_writes_a_design_that_loads_and_checks(tmp_path, capsys):
+    path = tmp_path / "board.toml"
+    code = main(["new", str(path), "--part", "U1=mcu-3v3", "--part", "U2=eeprom-i2c",
+                 "--part", "U3=nor-flash-spi", "--title", "Starter"])
+    assert code == 0, capsys.readouterr().err
+    text = path.read_text(encoding="utf-8")
+    assert text.startswith("# A starter design")  # comments for the reader
+    design = load_design(path)
+    assert design.title == "Starter"
+    # one bus per protocol the parts offer: I2C (mcu, eeprom), SPI (mcu, flash)
+    assert [(b.id, b.protocol) for b in design.buses] == [("i2c", "i2c"), ("spi", "spi")]
+    i2c, spi = design.buses
+    assert sorted(d.ref for d in i2c.devices) == ["U1", "U2"]
+    assert [d.ref for d in spi.devices if d.is_controller] == ["U1"]
+    result = check_design(design)
+    assert result.status in ("pass", "warn", "fail")
+    assert main(["check", str(path)]) in (0, 1)
+
+
+def test_new_refuses_to_overwrite(tmp_path, capsys):
+    path = tmp_path / "board.toml"
+    path.write_text("# mine\n", encoding="utf-8")
+    code = main(["new", str(path), "--part", "U1=mcu-3v3", "--part", "U2=eeprom-i2c"])
+    assert code == 2
+    assert "does not overwrite" in capsys.readouterr().err
+    assert path.read_text(encoding="utf-8") == "# mine\n"
+
+
+def test_new_names_the_parts_that_share_no_protocol(tmp_path, capsys):
+    path = tmp_path / "board.toml"
+    code = main(["new", str(path), "--part", "U1=eeprom-i2c", "--part", "U2=nor-flash-spi"])
+    assert code == 2 and not path.exists()
+    assert "no two of these parts share a protocol" in capsys.readouterr().err
+
+
+def test_new_lists_gpio_pins_and_parts_on_no_bus(tmp_path):
+    path = tmp_path / "board.toml"
+    assert main(["new", str(path), "--part", "U1=mcu-3v3", "--part", "U2=adc-i2c",
+                 "--part", "U3=nor-flash-spi"]) == 0
+    text = path.read_text(encoding="utf-8")
+    assert "U2.rdy" in text  # the ADC's ready pin, a GPIO
+    assert "On no bus" not in text
+    design = load_design(path)
+    assert [b.protocol for b in design.buses] == ["i2c", "spi"]
+
+
+# ---------------------------------------------------------------- schema
+def _validator(kind: str):
+    import jsonschema
+
+    from pinlib.cli.commands.schema import schema_text
+
+    schema = json.loads(schema_text(kind))
+    jsonschema.Draft202012Validator.check_schema(schema)
+    return jsonschema.Draft202012Validator(schema)
+
+
+def test_the_shipped_design_schema_is_the_generated_one():
+    from pinlib.model.designschema import SHIPPED, schema_text
+
+    assert SHIPPED.read_text(encoding="utf-8") == schema_text(), \
+        "rebuild it: python -m pinlib.model.designschema"
+
+
+@pytest.mark.parametrize("path", DESIGNS, ids=lambda p: p.name)
+def test_every_shipped_and_test_design_is_valid_under_the_schema(path):
+    data = tomllib.loads(path.read_text(encoding="utf-8"))
+    errors = [f"{list(e.path)}: {e.message}" for e in _validator("design").iter_errors(data)]
+    assert not errors, errors
+
+
+@pytest.mark.parametrize(("change", "where"), [
+    ({"title": 3}, ["title"]),                                   # a number for a title
+    ({"bus": [{"id": "b", "protocol": "can"}]}, ["bus", 0, "protocol"]),
+    ({"bus": [{"id": "b", "protocol": "i2c", "supply": 3.3}]}, ["bus", 0, "supply"]),
+    ({"bus": [{"id": "b", "protocol": "i2c", "supply": "3.3 volts!"}]}, ["bus", 0, "supply"]),
+    ({"bus": [{"id": "b", "protocol": "i2c", "pullup": "sometimes"}]}, ["bus", 0, "pullup"]),
+    ({"colour": "red"}, []),                                    # an unknown key
+])
+def test_the_design_schema_refuses_what_the_loader_refuses(change, where):
+    data = {"format": "pinlib.design/1", "title": "t", **change}
+    errors = list(_validator("design").iter_errors(data))
+    assert errors
+    assert where in [list(e.absolute_path) for e in errors]
+
+
+def test_schema_command_prints_and_writes(tmp_path, capsys):
+    assert main(["schema", "design"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    assert out["properties"]["format"]["const"] == "pinlib.design/1"
+    target = tmp_path / "part.schema.json"
+    assert main(["schema", "part", "--output", str(target)]) == 0
+    assert json.loads(target.read_text(encoding="utf-8"))["title"].startswith("pinlib part")
+    assert main(["schema", "board"]) == 2
+    assert "no schema of this kind" in capsys.readouterr().err
+
+
+# ---------------------------------------------------------------- check over many designs
+def _board(tmp_path, name, replace=None):
+    text = DEMO.read_text(encoding="utf-8")
+    if replace:
+        text = text.replace(*replace)
+    path = tmp_path / name
+    path.write_text(text, encoding="utf-8")
+    return path
+
+
+def test_one_design_keeps_the_full_report(tmp_path, capsys):
+    path = _board(tmp_path, "a.toml")
+    code_one = main(["check", str(path)])
+    one = capsys.readouterr().out
+    assert code_one in (0, 1)
+    assert "bus sensors (" in one  # the full report, not a summary line
+
+
+def test_many_designs_one_line_each_and_the_worst_exit_code(tmp_path, capsys, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    _board(tmp_path, "a.toml")
+    # a failing variant: a 1 MΩ pull-up cannot meet the Fast-mode rise time
+    _board(tmp_path, "b.toml", ('pullup = "4.7 kΩ"', 'pullup = "1 MΩ"'))
+    (tmp_path / "c.toml").write_text('format = "pinlib.design/1"\ntitle = 3\n',
+                                     encoding="utf-8")
+    code = main(["check", "[ab].toml", "--jobs", "2"])
+    out = capsys.readouterr().out.splitlines()
+    assert code == 1  # the worst of warn and fail
+    assert out[0].startswith("WARN  a.toml") and out[1].startswith("FAIL  b.toml")
+    assert out[-1].startswith("2 designs: 0 pass, 1 warn, 1 fail, 0 not checked")
+    code = main(["check", "*.toml", "--jobs", "1", "--json"])
+    captured = capsys.readouterr()
+    rows = json.loads(captured.out)
+    assert code == 2  # c.toml could not be loaded; the others are still reported
+    assert [r["path"] for r in rows] == ["a.toml", "b.toml", "c.toml"]
+    assert [r["status"] for r in rows] == ["warn", "fail", "error"]
+    assert "c.toml:2, field 'title'" in rows[2]["error"]
+    assert "c.toml: not checked" in captured.err
+
+
+def test_parallel_and_serial_runs_agree(tmp_path):
+    from pinlib.studies.many import check_many, default_jobs
+
+    paths = [_board(tmp_path, f"{i}.toml") for i in range(3)]
+    serial = check_many(paths, jobs=1)
+    parallel = check_many(paths, jobs=2)
+    assert [s.result for s in serial] == [p.result for p in parallel]
+    assert default_jobs(1) == 1
+
+
+def test_progress_counts_designs(tmp_path):
+    from pinlib.studies.many import check_many
+
+    paths = [_board(tmp_path, f"{i}.toml") for i in range(2)]
+    seen = []
+    check_many(paths, jobs=1, progress=lambda done, total: seen.append((done, total)))
+    assert seen == [(1, 2), (2, 2)]
+
+
+def test_against_snapshots_lists_what_moved_per_design(tmp_path, capsys, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    a = _board(tmp_path, "a.toml")
+    _board(tmp_path, "b.toml")
+    assert main(["check", str(a), "--save"]) in (0, 1)
+    capsys.readouterr()
+    # the saved design's pull-up changes after its snapshot
+    a.write_text(a.read_text(encoding="utf-8").replace('pullup = "4.7 kΩ"', 'pullup = "3.3 kΩ"'),
+                 encoding="utf-8")
+    main(["check", "a.toml", "b.toml", "--against-snapshots", "--jobs", "1"])
+    out = capsys.readouterr().out
+    assert "no snapshot to compare with" in out  # b.toml
+    assert "pullup" in out.split("b.toml")[0]    # what moved in a.toml
+    main(["check", "a.toml", "b.toml", "--against-snapshots", "--json", "--jobs", "1"])
+    rows = json.loads(capsys.readouterr().out)
+    assert [r["snapshot"] for r in rows] == ["compared", "none"]
+    assert rows[0]["changes"]
+
+
+# ---------------------------------------------------------------- parts used-by
+def test_used_by_finds_direct_and_inherited_uses(tmp_path, capsys, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    _board(tmp_path, "a.toml")
+    (tmp_path / "notes.toml").write_text("x = 1\n", encoding="utf-8")  # not a design
+    assert main(["parts", "used-by", "eeprom-i2c", "--json"]) == 0
+    got = json.loads(capsys.readouterr().out)
+    assert [(u["bus"], u["ref"]) for u in got["uses"]] == [("sensors", "U4")]
+    assert main(["parts", "used-by", "i2c-peripheral", "a.toml"]) == 0
+    out = capsys.readouterr().out
+    assert "U4  eeprom-i2c  (eeprom-i2c → i2c-peripheral)" in out
+    assert main(["parts", "used-by", "ribbon-cable", "a.toml"]) == 0
+    assert "bus sensors  cable  ribbon-cable" in capsys.readouterr().out
+
+
+# ---------------------------------------------------------------- swap over many designs
+def test_swap_part_over_designs_reports_and_writes_only_what_was_not_refused(
+        tmp_path, capsys, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    a = _board(tmp_path, "a.toml")
+    # in b.toml the part to replace sits where the new one cannot serve: a 5 V-only
+    # expander class is fine, but an SPI flash has no I2C pins
+    b = _board(tmp_path, "b.toml", ('{ ref = "U4", part = "eeprom-i2c" }',
+                                    '{ ref = "U4", part = "rtc-i2c" }'))
+    c = _board(tmp_path, "c.toml", ('{ ref = "U6", part = "io-expander-i2c" }',
+                                    '{ ref = "U6", part = "eeprom-i2c" }'))
+    before = {p: p.read_text(encoding="utf-8") for p in (a, b, c)}
+    code = main(["swap", "--part", "eeprom-i2c=io-expander-legacy-5v", "a.toml", "b.toml",
+                 "--json"])
+    got = json.loads(capsys.readouterr().out)
+    assert code == 1  # the legacy expander fails a Fast-mode check in a.toml
+    rows = {d["path"]: d for d in got["designs"]}
+    assert rows["a.toml"]["status"] == "swapped"
+    assert rows["a.toml"]["positions"] == [{"ref": "U4", "old": "eeprom-i2c",
+                                            "new": "io-expander-legacy-5v"}]
+    assert (rows["a.toml"]["before"], rows["a.toml"]["after"]) == ("warn", "fail")
+    assert rows["a.toml"]["changes"]["status_changes"]
+    assert rows["b.toml"]["status"] == "unused"
+    assert all(p.read_text(encoding="utf-8") == before[p] for p in (a, b, c))  # no --write
+    # an SPI flash cannot serve the I2C positions: refused with reasons, exit 2
+    code = main(["swap", "--part", "eeprom-i2c=nor-flash-spi", "*.toml", "--write"])
+    out = capsys.readouterr().out
+    assert code == 2
+    assert "refused (U4 eeprom-i2c → nor-flash-spi)" in out
+    assert "has no i2c-sda pin" in out
+    assert all(p.read_text(encoding="utf-8") == before[p] for p in (a, b, c))
+    # --write edits the designs that were not refused, only the part line
+    code = main(["swap", "--part", "eeprom-i2c=rtc-i2c", "a.toml", "c.toml", "--write"])
+    out = capsys.readouterr().out
+    assert code in (0, 1) and "written" in out
+    assert a.read_text(encoding="utf-8") == before[a].replace(
+        '{ ref = "U4", part = "eeprom-i2c" }', '{ ref = "U4", part = "rtc-i2c" }')
+    assert '{ ref = "U6", part = "rtc-i2c" }' in c.read_text(encoding="utf-8")
+    assert b.read_text(encoding="utf-8") == before[b]
+
+
+def test_swap_over_designs_refuses_mixed_forms(tmp_path, capsys):
+    a = _board(tmp_path, "a.toml")
+    assert main(["swap", str(a), "U4=rtc-i2c", "--part", "eeprom-i2c=rtc-i2c"]) == 2
+    assert "cannot be mixed" in capsys.readouterr().err
+    assert main(["swap", str(a)]) == 2
+    assert "no substitution given" in capsys.readouterr().err
+
+
+def test_new_writes_any_title_and_reference_as_valid_toml(tmp_path):
+    path = tmp_path / "odd.toml"
+    title = 'A "quoted" title \\ with a back-slash,\na new line and a tab\t'
+    assert main(["new", str(path), "--part", 'U"1=mcu-3v3', "--part", "U2=eeprom-i2c",
+                 "--title", title]) == 0
+    design = load_design(path)
+    assert design.title == title
+    assert {d.ref for d in design.buses[0].devices} == {'U"1', "U2"}
