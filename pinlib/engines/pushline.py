@@ -934,95 +934,125 @@ def _si_checks(a: LineAnalysis, cases: dict, clock: float | None, clock_line: bo
                warn: float) -> list[Check]:
     """Overshoot, undershoot, ringing, edge time and levels of a line's final cases."""
     checks: list[Check] = []
-    drivers = {d.ref: d for d in a.drivers}
     for p in a.loads:
-        abs_max = p.level("abs_max")
-        if abs_max is None:
-            continue
-        own = [c for ref, c in cases.items() if ref != p.ref]
-        if not own:
-            continue
-        peak = max(c.rise.v_to + c.rise.overshoot for c in own)
-        allowed = abs_max - p.vdd
-        above = peak - p.vdd
-        if abs(above) <= 1e-12 * max(abs(peak), 1.0):
-            above = 0.0  # a settled edge at the supply: the difference is float rounding
-        checks.append(check_max(
-            "overshoot", above, allowed, "V", p.source("abs_max"),
-            f"peak {_fmt(peak, 'V')} at {p.label} against its abs_max {_fmt(abs_max, 'V')} "
-            f"at {_fmt(p.vdd, 'V')}: {_fmt(above, 'V')} above its supply, "
-            f"{_fmt(allowed, 'V')} allowed", warn_margin=warn, subject=p.ref,
-            details={"peak": peak, "abs_max": abs_max, "supply": p.vdd}))
-        dip = max(c.fall.undershoot - c.fall.v_to for c in own)
-        low_allowed = min(allowed, UNDERSHOOT_DEFAULT)
-        checks.append(check_max(
-            "undershoot", dip, low_allowed, "V", f"{UNDERSHOOT_RULE}; {p.source('abs_max')}",
-            f"dip to {_fmt(-dip, 'V')} at {p.label}; {_fmt(low_allowed, 'V')} below ground "
-            "allowed", warn_margin=warn, subject=p.ref))
+        checks += _swing_checks(p, cases, warn)
+    drivers = {d.ref: d for d in a.drivers}
     for rx in a.receivers:
         v_il, v_ih = rx.level("v_il"), rx.level("v_ih")
         if v_il is None or v_ih is None or not v_ih > v_il:
             continue
-        counts = {}
+        checks.append(_ringing_check(rx, cases, v_il, v_ih, clock_line))
         for ref, c in cases.items():
-            if ref == rx.ref:
-                continue
-            for edge in ("rise", "fall"):
-                w = c.wave(edge)
-                got = wf.recrossings(w.t, w.v, v_il, v_ih, edge=edge)
-                prev = counts.get(edge, (0, 0))
-                counts[edge] = (max(prev[0], int(got.entry)), max(prev[1], int(got.opposite)))
-        total = sum(e for e, _ in counts.values())
-        if total == 0:
-            status = "pass"
-        else:
-            status = "fail" if clock_line else "warn"
-        what = "double clocking" if clock_line else "a glitch on a data line"
-        checks.append(Check(
-            "ringing", status, total, 0, "", None, _RINGING_SOURCE,
-            (f"no re-crossing of VIL {_fmt(v_il, 'V')} / VIH {_fmt(v_ih, 'V')} at {rx.label}"
-             if total == 0 else
-             f"{total} re-crossing(s) of VIL {_fmt(v_il, 'V')} / VIH {_fmt(v_ih, 'V')} at "
-             f"{rx.label} after the first crossing: risk of {what}"),
-            subject=rx.ref,
-            details={f"{edge}_{kind}": n for edge, (e, o) in counts.items()
-                     for kind, n in (("recrossings", e), ("full_reversals", o))},
-            fix=None if total == 0 else "add or increase a series resistor at the driver"))
-        for ref, c in cases.items():
-            if ref == rx.ref:
-                continue
-            d = drivers[ref]
-            if d.pin.drive == "open-drain":
-                v_oh, v_ol = c.v_high, c.v_low
-                oh_src = ol_src = f"{d.label}: pull-up and sink on the net"
-            else:
-                v_oh = d.level("v_oh")
-                v_ol = d.level("v_ol")
-                oh_src = d.source("v_oh") if v_oh is not None else ""
-                ol_src = d.source("v_ol") if v_ol is not None else ""
-                if v_oh is None:
-                    v_oh, oh_src = d.vdd, f"{d.label}: rail-to-rail CMOS output assumed"
-                if v_ol is None:
-                    v_ol, ol_src = 0.0, f"{d.label}: rail-to-rail CMOS output assumed"
-            checks.append(check_min(
-                "level-high", v_oh, v_ih, "V", rx.source("v_ih"),
-                f"{d.label} VOH {_fmt(v_oh, 'V')} against {rx.label} VIH {_fmt(v_ih, 'V')}",
-                warn_margin=warn, subject=rx.ref, details={"driver": d.label,
-                                                           "driver_source": oh_src}))
-            checks.append(check_max(
-                "level-low", v_ol, v_il, "V", rx.source("v_il"),
-                f"{d.label} VOL {_fmt(v_ol, 'V')} against {rx.label} VIL {_fmt(v_il, 'V')}",
-                warn_margin=warn, subject=rx.ref, details={"driver": d.label,
-                                                           "driver_source": ol_src}))
+            if ref != rx.ref:
+                checks += _level_checks(rx, drivers[ref], c, v_il, v_ih, warn)
     if clock:
-        edge = max(max(c.rise.t_edge, c.fall.t_edge) for c in cases.values())
-        limit = EDGE_FRACTION / clock
-        checks.append(rule_of_thumb(check_max(
-            "edge-time", edge, limit, "s", EDGE_RULE,
-            f"slowest 10-90 % edge {_fmt(edge, 's')} at the far end against "
-            f"{EDGE_FRACTION:.0%} of the {_fmt(1.0 / clock, 's')} period",
-            warn_margin=warn, details={"fraction": EDGE_FRACTION})))
+        checks.append(_edge_check(cases, clock, warn))
     return checks
+
+
+def _swing_checks(p: Endpoint, cases: dict, warn: float) -> list[Check]:
+    """Overshoot and undershoot at one pin against its abs_max (none without one)."""
+    abs_max = p.level("abs_max")
+    if abs_max is None:
+        return []
+    own = [c for ref, c in cases.items() if ref != p.ref]
+    if not own:
+        return []
+    peak = max(c.rise.v_to + c.rise.overshoot for c in own)
+    allowed = abs_max - p.vdd
+    above = peak - p.vdd
+    if abs(above) <= 1e-12 * max(abs(peak), 1.0):
+        above = 0.0  # a settled edge at the supply: the difference is float rounding
+    dip = max(c.fall.undershoot - c.fall.v_to for c in own)
+    low_allowed = min(allowed, UNDERSHOOT_DEFAULT)
+    return [
+        check_max(
+            "overshoot", above, allowed, "V", p.source("abs_max"),
+            f"peak {_fmt(peak, 'V')} at {p.label} against its abs_max {_fmt(abs_max, 'V')} "
+            f"at {_fmt(p.vdd, 'V')}: {_fmt(above, 'V')} above its supply, "
+            f"{_fmt(allowed, 'V')} allowed", warn_margin=warn, subject=p.ref,
+            details={"peak": peak, "abs_max": abs_max, "supply": p.vdd}),
+        check_max(
+            "undershoot", dip, low_allowed, "V", f"{UNDERSHOOT_RULE}; {p.source('abs_max')}",
+            f"dip to {_fmt(-dip, 'V')} at {p.label}; {_fmt(low_allowed, 'V')} below ground "
+            "allowed", warn_margin=warn, subject=p.ref),
+    ]
+
+
+def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
+                   clock_line: bool) -> Check:
+    """Re-crossings of VIL/VIH at one receiver over every other driver's edges."""
+    counts = {}
+    for ref, c in cases.items():
+        if ref == rx.ref:
+            continue
+        for edge in ("rise", "fall"):
+            w = c.wave(edge)
+            got = wf.recrossings(w.t, w.v, v_il, v_ih, edge=edge)
+            prev = counts.get(edge, (0, 0))
+            counts[edge] = (max(prev[0], int(got.entry)), max(prev[1], int(got.opposite)))
+    total = sum(e for e, _ in counts.values())
+    if total == 0:
+        status = "pass"
+    else:
+        status = "fail" if clock_line else "warn"
+    what = "double clocking" if clock_line else "a glitch on a data line"
+    return Check(
+        "ringing", status, total, 0, "", None, _RINGING_SOURCE,
+        (f"no re-crossing of VIL {_fmt(v_il, 'V')} / VIH {_fmt(v_ih, 'V')} at {rx.label}"
+         if total == 0 else
+         f"{total} re-crossing(s) of VIL {_fmt(v_il, 'V')} / VIH {_fmt(v_ih, 'V')} at "
+         f"{rx.label} after the first crossing: risk of {what}"),
+        subject=rx.ref,
+        details={f"{edge}_{kind}": n for edge, (e, o) in counts.items()
+                 for kind, n in (("recrossings", e), ("full_reversals", o))},
+        fix=None if total == 0 else "add or increase a series resistor at the driver")
+
+
+def _driver_levels(d: Endpoint, c) -> tuple[float, str, float, str]:
+    """A driver's VOH, its source, VOL, its source: an open-drain driver's from the
+    pull-up and sink on the net; a push-pull one's from its part, or rail to rail."""
+    if d.pin.drive == "open-drain":
+        src = f"{d.label}: pull-up and sink on the net"
+        return c.v_high, src, c.v_low, src
+    v_oh = d.level("v_oh")
+    v_ol = d.level("v_ol")
+    oh_src = d.source("v_oh") if v_oh is not None else ""
+    ol_src = d.source("v_ol") if v_ol is not None else ""
+    if v_oh is None:
+        v_oh, oh_src = d.vdd, f"{d.label}: rail-to-rail CMOS output assumed"
+    if v_ol is None:
+        v_ol, ol_src = 0.0, f"{d.label}: rail-to-rail CMOS output assumed"
+    return v_oh, oh_src, v_ol, ol_src
+
+
+def _level_checks(rx: Endpoint, d: Endpoint, c, v_il: float, v_ih: float,
+                  warn: float) -> list[Check]:
+    """A driver's VOH/VOL against one receiver's VIH/VIL."""
+    v_oh, oh_src, v_ol, ol_src = _driver_levels(d, c)
+    return [
+        check_min(
+            "level-high", v_oh, v_ih, "V", rx.source("v_ih"),
+            f"{d.label} VOH {_fmt(v_oh, 'V')} against {rx.label} VIH {_fmt(v_ih, 'V')}",
+            warn_margin=warn, subject=rx.ref, details={"driver": d.label,
+                                                       "driver_source": oh_src}),
+        check_max(
+            "level-low", v_ol, v_il, "V", rx.source("v_il"),
+            f"{d.label} VOL {_fmt(v_ol, 'V')} against {rx.label} VIL {_fmt(v_il, 'V')}",
+            warn_margin=warn, subject=rx.ref, details={"driver": d.label,
+                                                       "driver_source": ol_src}),
+    ]
+
+
+def _edge_check(cases: dict, clock: float, warn: float) -> Check:
+    """The slowest 10-90 % edge against a fraction of the clock period (a rule of thumb)."""
+    edge = max(max(c.rise.t_edge, c.fall.t_edge) for c in cases.values())
+    limit = EDGE_FRACTION / clock
+    return rule_of_thumb(check_max(
+        "edge-time", edge, limit, "s", EDGE_RULE,
+        f"slowest 10-90 % edge {_fmt(edge, 's')} at the far end against "
+        f"{EDGE_FRACTION:.0%} of the {_fmt(1.0 / clock, 's')} period",
+        warn_margin=warn, details={"fraction": EDGE_FRACTION}))
 
 
 def _figures_of(cases: dict) -> dict:
@@ -1128,6 +1158,8 @@ def _analyse_line(signal, line, drivers, loads, receivers, clock, clock_line, wa
 
 
 def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, warn_margin):
+    """The line analysis in its steps: sections, driver models, electrical length, the
+    series resistor and the final cases, checks, figures."""
     notes = res.notes
     stretches = stretches_of(line.sections)
     a = LineAnalysis(signal, line, stretches, list(drivers), list(loads), list(receivers),
@@ -1137,7 +1169,22 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
                           hint="a push-pull or open-drain pin must sit on the line")
     if any(not s.td > 0 for s in stretches) and stretches:
         notes.append("a section without a delay counts as a lumped capacitance at the far end")
-    # Driver models; open-drain drivers pull against the net's pull-ups.
+    pullup = _driver_models(a, res)
+    if not a.drivers:
+        for name, unit in _FIGURE_UNITS:
+            res.figure(name, None, unit)
+        return a
+    _electrical_length(a, notes)
+    _solve_cases(a, pullup, clock, clock_line, warn_margin, notes)
+    _add_checks(a, res, clock, clock_line, warn_margin)
+    _add_figures(a, res)
+    return a
+
+
+def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
+    """Fill ``a.models``; open-drain drivers pull against the net's pull-ups.  A driver
+    with no pull-up to pull against fails and leaves ``a.drivers``.  Returns the
+    (pull-up, its rail) of each open-drain driver."""
     pullup = {}
     stuck = []
     for d in a.drivers:
@@ -1146,65 +1193,44 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
             if rp is None:
                 res.add(Check("pull-up", "fail", None, None, "Ω", None,
                               "an open-drain line needs a pull-up (common practice)",
-                              f"{d.label} is open-drain and no pin on {signal} carries a "
+                              f"{d.label} is open-drain and no pin on {a.signal} carries a "
                               "pull-up: the line never rises", subject=d.ref,
                               fix="use a part with an on-board pull-up, or enable internal "
                                   "pull-ups"))
                 stuck.append(d)
                 continue
             pullup[d.ref] = (rp, rail)
-            a.models[d.ref] = _open_drain_model(d.pin, d.vdd, rp, notes)
+            a.models[d.ref] = _open_drain_model(d.pin, d.vdd, rp, res.notes)
         else:
-            a.models[d.ref] = _driver_model(d, notes)
+            a.models[d.ref] = _driver_model(d, res.notes)
     a.drivers = [d for d in a.drivers if d not in stuck]
-    if not a.drivers:
-        for name, unit in _FIGURE_UNITS:
-            res.figure(name, None, unit)
-        return a
-    # Electrical length against the fastest edge into the pins alone.
+    return pullup
+
+
+def _electrical_length(a: LineAnalysis, notes: list) -> None:
+    """Electrical length against the fastest edge into the pins alone."""
     alone = []
     for d in a.drivers:
         m = a.models[d.ref]
-        c_pins = sum(p.c_in for p in _others(a.loads, d)) + line.extra_capacitance
+        c_pins = sum(p.c_in for p in _others(a.loads, d)) + a.line.extra_capacitance
         alone.append(float(drv.edge_time(m.r_fall, m.t_ramp_fall, c_pins)))
         if d.pin.drive != "open-drain":
             alone.append(float(drv.edge_time(m.r_rise, m.t_ramp_rise, c_pins)))
     a.edge_alone = min(alone)
-    a.long, a.ratio = line_model(stretches, a.edge_alone)
+    a.long, a.ratio = line_model(a.stretches, a.edge_alone)
     notes.append(f"one-way delay {_fmt(a.delay, 's')} is {a.ratio:.2f} of the driver's "
                  f"{_fmt(a.edge_alone, 's')} edge into the pins alone: "
                  f"{'electrically long' if a.long else 'electrically short'} "
                  f"({LONG_LINE_RULE})")
 
-    setting = line.series_resistor
+
+def _solve_cases(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
+                 notes: list) -> None:
+    """The series resistor of the line (the design's, or chosen by "auto") and the final
+    cases with it."""
+    setting = a.line.series_resistor
     if setting == "auto":
-        bare = _cases(a, 0.0, pullup)
-        bare_checks = _si_checks(a, bare, clock, clock_line, warn_margin)
-        # Only what a series resistor can cure decides (a slow edge or a level it cannot),
-        # so the choice does not depend on the clock.
-        clean = all(c.status != "fail" for c in bare_checks if c.id in _TERMINATION_CURES)
-        r_drv = min(0.5 * (a.models[d.ref].r_rise + a.models[d.ref].r_fall)
-                    for d in a.drivers if d.pin.drive != "open-drain") \
-            if any(d.pin.drive != "open-drain" for d in a.drivers) else math.nan
-        a.rs_ideal = a.z0 - r_drv if math.isfinite(a.z0) and math.isfinite(r_drv) else None
-        if (not a.long and clean) or a.rs_ideal is None:
-            a.rs, a.cases = 0.0, bare
-            why = ("electrically short, and no overshoot, undershoot or ringing check "
-                   "fails without one"
-                   if (not a.long and clean) else "no line impedance or push-pull driver")
-            notes.append(f"auto series resistor: none ({why})")
-        else:
-            a.rs = float(auto_series_resistor(a.z0, r_drv))
-            if a.rs > 0:
-                a.unterminated = bare
-                a.cases = _cases(a, a.rs, pullup)
-                notes.append(f"auto series resistor: {_fmt(a.rs, 'Ω')} (Z0 {_fmt(a.z0, 'Ω')} "
-                             f"- r_out {_fmt(r_drv, 'Ω')} = {_fmt(a.rs_ideal, 'Ω')}, "
-                             "nearest E24)")
-            else:
-                a.cases = bare
-                notes.append(f"auto series resistor: none (the driver's {_fmt(r_drv, 'Ω')} "
-                             f"already matches or exceeds Z0 {_fmt(a.z0, 'Ω')})")
+        _auto_series(a, pullup, clock, clock_line, warn_margin, notes)
     elif setting == "none" or setting is None:
         a.rs = 0.0
         a.cases = _cases(a, 0.0, pullup)
@@ -1212,6 +1238,43 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
         a.rs = float(setting)
         a.cases = _cases(a, a.rs, pullup)
 
+
+def _auto_series(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
+                 notes: list) -> None:
+    """``series_resistor = "auto"``: none on a short line that passes what a series
+    resistor cures, else ``Z0 - r_out`` to the nearest E24 value."""
+    bare = _cases(a, 0.0, pullup)
+    bare_checks = _si_checks(a, bare, clock, clock_line, warn_margin)
+    # Only what a series resistor can cure decides (a slow edge or a level it cannot),
+    # so the choice does not depend on the clock.
+    clean = all(c.status != "fail" for c in bare_checks if c.id in _TERMINATION_CURES)
+    r_drv = min(0.5 * (a.models[d.ref].r_rise + a.models[d.ref].r_fall)
+                for d in a.drivers if d.pin.drive != "open-drain") \
+        if any(d.pin.drive != "open-drain" for d in a.drivers) else math.nan
+    a.rs_ideal = a.z0 - r_drv if math.isfinite(a.z0) and math.isfinite(r_drv) else None
+    if (not a.long and clean) or a.rs_ideal is None:
+        a.rs, a.cases = 0.0, bare
+        why = ("electrically short, and no overshoot, undershoot or ringing check "
+               "fails without one"
+               if (not a.long and clean) else "no line impedance or push-pull driver")
+        notes.append(f"auto series resistor: none ({why})")
+        return
+    a.rs = float(auto_series_resistor(a.z0, r_drv))
+    if a.rs > 0:
+        a.unterminated = bare
+        a.cases = _cases(a, a.rs, pullup)
+        notes.append(f"auto series resistor: {_fmt(a.rs, 'Ω')} (Z0 {_fmt(a.z0, 'Ω')} "
+                     f"- r_out {_fmt(r_drv, 'Ω')} = {_fmt(a.rs_ideal, 'Ω')}, "
+                     "nearest E24)")
+    else:
+        a.cases = bare
+        notes.append(f"auto series resistor: none (the driver's {_fmt(r_drv, 'Ω')} "
+                     f"already matches or exceeds Z0 {_fmt(a.z0, 'Ω')})")
+
+
+def _add_checks(a: LineAnalysis, res: LineResult, clock, clock_line, warn_margin) -> None:
+    """The signal-integrity checks of the final cases, the line delay, the series
+    termination "auto" chose, and a note for a waveform that had not settled."""
     for c in _si_checks(a, a.cases, clock, clock_line, warn_margin):
         res.add(c)
     if clock and a.delay > 0:
@@ -1221,30 +1284,37 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
             "period", warn_margin=warn_margin,
             fix="shorten the line, lower the clock, or model the link as a transmission "
                 "system (losses, skew between lines) outside pinlib")))
-    if setting == "auto":
-        with_f = _figures_of(a.cases)
-        details = {"rs_chosen": a.rs, "rs_ideal": a.rs_ideal, "z0": a.z0,
-                   "delay_to_edge_ratio": a.ratio, "with": with_f}
-        if a.unterminated is not None:
-            details["without"] = _figures_of(a.unterminated)
-        else:
-            details["without"] = with_f
-        wo = details["without"]
-        res.add(Check(
-            "series-termination", "pass", a.rs, a.rs_ideal, "Ω", None, TERMINATION_RULE,
-            (f"auto: {_fmt(a.rs, 'Ω')}; overshoot {_fmt(wo['overshoot'], 'V')} -> "
-             f"{_fmt(with_f['overshoot'], 'V')}, rise {_fmt(wo['edge_rise_time'], 's')} -> "
-             f"{_fmt(with_f['edge_rise_time'], 's')}" if a.unterminated is not None else
-             "auto: no series resistor needed"),
-            details=details))
+    if a.line.series_resistor == "auto":
+        res.add(_termination_check(a))
     for c in a.cases.values():
         for w in (c.rise, c.fall):
             if not w.settled:
-                notes.append(f"{c.driver.label} {w.edge}: the waveform had not settled within "
-                             "1 % at the end of the record")
+                res.notes.append(f"{c.driver.label} {w.edge}: the waveform had not settled "
+                                 "within 1 % at the end of the record")
 
+
+def _termination_check(a: LineAnalysis) -> Check:
+    """What "auto" chose, with the figures with and without the resistor."""
+    with_f = _figures_of(a.cases)
+    details = {"rs_chosen": a.rs, "rs_ideal": a.rs_ideal, "z0": a.z0,
+               "delay_to_edge_ratio": a.ratio, "with": with_f}
+    if a.unterminated is not None:
+        details["without"] = _figures_of(a.unterminated)
+    else:
+        details["without"] = with_f
+    wo = details["without"]
+    return Check(
+        "series-termination", "pass", a.rs, a.rs_ideal, "Ω", None, TERMINATION_RULE,
+        (f"auto: {_fmt(a.rs, 'Ω')}; overshoot {_fmt(wo['overshoot'], 'V')} -> "
+         f"{_fmt(with_f['overshoot'], 'V')}, rise {_fmt(wo['edge_rise_time'], 's')} -> "
+         f"{_fmt(with_f['edge_rise_time'], 's')}" if a.unterminated is not None else
+         "auto: no series resistor needed"),
+        details=details)
+
+
+def _add_figures(a: LineAnalysis, res: LineResult) -> None:
+    """The line's figures, in the order of ``_FIGURE_UNITS``."""
     figs = _figures_of(a.cases)
-    # (the order of _FIGURE_UNITS)
     res.figure("load_capacitance", a.trace_c + max(c.c_far for c in a.cases.values()), "F")
     res.figure("trace_delay", a.delay, "s")
     res.figure("z0", a.z0, "Ω")
@@ -1257,6 +1327,5 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
     used = any(c.distributed for c in a.cases.values())
     res.figure("model", "distributed" if used else "lumped", "")
     if not a.long:
-        notes.append(("distributed" if used else "lumped") + f" model: {LUMPED_RULE}")
+        res.notes.append(("distributed" if used else "lumped") + f" model: {LUMPED_RULE}")
     res.figure("delay_to_edge_ratio", a.ratio, "")
-    return a
