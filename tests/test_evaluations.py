@@ -13,6 +13,8 @@ from pinlib.core.protocols import protocol
 from pinlib.engines import opendrain, pushpull, spi
 from pinlib.engines.dispatch import check_design
 from pinlib.engines.pushline import waves
+from pinlib.engines.spi import evaluate as spi_evaluate
+from pinlib.engines.spi import sweeps as spi_sweeps
 from pinlib.model.design import load_design
 from pinlib.present import plotdata
 from pinlib.present.review import build_review
@@ -38,7 +40,11 @@ def counts(monkeypatch):
         monkeypatch.setattr(module, name, counted)
 
     by_bus(opendrain, "collect")
+    # spi_analysis as the package exports it (a lazy import looks it up there) and as
+    # the modules calling it look it up in their own
     by_bus(spi, "spi_analysis")
+    by_bus(spi_evaluate, "spi_analysis")
+    by_bus(spi_sweeps, "spi_analysis")
     by_bus(pushpull, "gpio_analyses")
     solve = waves._unit_edge
 

@@ -1694,8 +1694,9 @@ def _(env):
 @case("CONTROLLER_LACKS_PUSH_PULL_PIN",
       M.CONTROLLER_LACKS_PUSH_PULL_PIN.format(function="spi-sclk"))
 def _(env):
-    from pinlib.engines import spi
-    env.monkeypatch.setattr(spi, "endpoint", lambda *a: None)  # no SCLK pin found
+    from pinlib.engines.spi import analysis
+    # spi_analysis looks endpoint up in its own module
+    env.monkeypatch.setattr(analysis, "endpoint", lambda *a: None)  # no SCLK pin found
     return _fails(lambda e: _check(e.design(SPI_BUS)), env)
 
 
@@ -1717,13 +1718,15 @@ def _(env):
     import dataclasses
 
     from pinlib.engines import spi
+    from pinlib.engines.spi import sweeps
     real = spi.spi_analysis
 
     def without_t_valid(bus, design):
         sa = real(bus, design)
         return dataclasses.replace(sa, peripherals=[dataclasses.replace(p, t_valid=None)
                                                     for p in sa.peripherals])
-    env.monkeypatch.setattr(spi, "spi_analysis", without_t_valid)
+    # max_clock_vs_t_valid looks spi_analysis up in its own module
+    env.monkeypatch.setattr(sweeps, "spi_analysis", without_t_valid)
     return _fails(lambda e: spi.max_clock_vs_t_valid(*_bus(e), [5e-9]), env)
 
 

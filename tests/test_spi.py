@@ -8,7 +8,9 @@ from __future__ import annotations
 
 import dataclasses
 import doctest
+import importlib
 import inspect
+import pkgutil
 import re
 from pathlib import Path
 
@@ -262,6 +264,9 @@ def test_docstring_parameters_match_signature_and_carry_units(func):
 
 
 def test_docstring_examples():
-    result = doctest.testmod(spi, optionflags=doctest.NORMALIZE_WHITESPACE)
-    assert result.attempted > 0
-    assert result.failed == 0
+    # the examples sit in the package's modules
+    modules = [spi] + [importlib.import_module(f"{spi.__name__}.{m.name}")
+                       for m in pkgutil.iter_modules(spi.__path__)]
+    results = [doctest.testmod(m, optionflags=doctest.NORMALIZE_WHITESPACE) for m in modules]
+    assert sum(r.attempted for r in results) > 0
+    assert sum(r.failed for r in results) == 0
