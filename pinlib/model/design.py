@@ -420,15 +420,112 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
     return _build(raw, path, library, text, swaps or {}, index)
 
 
-def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict,
-           index: dict | None = None) -> Design:
-    index = line_index(text) if index is None else index
-    fname = str(path) if path else None
+class _Resolver:
+    """The references of one design file resolved: parts against the library, geometry
+    names against ``[board.geometry]``; devices, sections and cables built from the raw
+    tables.  Every error names the file, line and field."""
 
-    def err(problem, loc, **kw):
+    def __init__(self, library: Library, fname: str | None, index: dict, swaps: dict):
+        self.library = library
+        self.fname = fname
+        self.index = index
+        self.swaps = swaps
+        self.swapped: set[str] = set()
+        self.geometries: dict[str, Geometry] = {}
+
+    def err(self, problem, loc, **kw):
         dotted = dotted_path(loc)
-        return DesignError(problem, file=fname, line=line_of(index, loc), field=dotted, **kw)
+        return DesignError(problem, file=self.fname, line=line_of(self.index, loc),
+                           field=dotted, **kw)
 
+    def part_of(self, part_id: str, loc) -> Part:
+        # A part whose file does not validate is the library's error at that file (it
+        # names this place); an unknown id is this file's error.
+        try:
+            return self.library.get(part_id, file=self.fname, line=line_of(self.index, loc),
+                                    field=dotted_path(loc))
+        except PinlibError as e:
+            if e.problem != M.UNKNOWN_PART:
+                raise
+            raise self.err(M.UNKNOWN_PART, loc, value=part_id, hint=e.hint) from None
+
+    def device(self, d: RawDevice, loc) -> Device:
+        err = self.err
+        part_id = self.swaps.get(d.ref, d.part)
+        if d.ref in self.swaps:
+            self.swapped.add(d.ref)
+        part = self.part_of(part_id, loc + ("part",))
+        if part.abstract:
+            raise err(M.ABSTRACT_ON_BOARD, loc + ("part",),
+                      value=part_id, hint="place a part that extends it, or `pinlib parts new`")
+        if part.category == "cable":
+            raise err(M.CABLE_AS_DEVICE, loc + ("part",),
+                      value=part_id)
+        if d.supply is not None and not d.supply > 0:
+            raise err(M.SUPPLY_NOT_POSITIVE, loc + ("supply",), value=format_si(d.supply, "V"))
+        role = "peripheral" if d.role == "target" else d.role
+        return Device(d.ref, part_id, part, role, d.supply, d.switched, d.series_resistor,
+                      d.side, d.internal_pullups, d.pin, d.capacitance_tolerance, loc)
+
+    def too_many_sections(self, count, loc):
+        return self.err(M.TOO_MANY_SECTIONS, loc, value=f"{count:,} sections",
+                        expected=f"at most {MAX_SECTIONS_PER_LINE:,} sections",
+                        hint="join stretches of one geometry into one (their lengths add up)")
+
+    def sections(self, t: RawTrace | RawSection | None, loc) -> tuple[Section, ...]:
+        if t is None:
+            return ()
+        err = self.err
+        subs = getattr(t, "sections", ())
+        if subs:
+            if t.length is not None or t.geometry or t.capacitance or t.part:
+                raise err(M.SECTIONS_OR_STRETCH, loc + ("sections",))
+            if len(subs) > MAX_SECTIONS_PER_LINE:  # before building any of them
+                raise self.too_many_sections(len(subs), loc + ("sections",))
+            out: list[Section] = []
+            for i, s in enumerate(subs):
+                out.extend(self.sections(s, loc + ("sections", i)))
+            return tuple(out)
+        if t.length is None:
+            raise err(M.TRACE_NEEDS_LENGTH, loc + ("length",))
+        if t.part:
+            return (self._cable_section(t, loc),)
+        if t.geometry:
+            geometries = self.geometries
+            if t.geometry not in geometries:
+                raise err(M.UNKNOWN_GEOMETRY, loc + ("geometry",), value=t.geometry,
+                          hint="defined: " + (", ".join(geometries) or "none; add "
+                                              "[board.geometry.NAME]"))
+            if t.capacitance is not None or t.delay is not None:
+                raise err(M.GEOMETRY_OR_PER_LENGTH, loc + ("capacitance",))
+            return (Section(t.length, geometries[t.geometry]),)
+        if t.capacitance is None:
+            raise err(M.TRACE_NEEDS_GEOMETRY, loc + ("geometry",),
+                      expected="geometry = \"NAME\" or capacitance = "
+                      "\"0.8 pF/cm\"")
+        return (Section(t.length, None, t.capacitance, t.delay),)
+
+    def _cable_section(self, t: RawTrace | RawSection, loc) -> Section:
+        cable = self.part_of(t.part, loc + ("part",))
+        if cable.line is None:
+            raise self.err(M.NOT_A_CABLE, loc + ("part",), value=t.part)
+        return Section(t.length, None, cable.line.capacitance.value,
+                       cable.line.delay.value if cable.line.delay else None,
+                       cable.line.impedance.value if cable.line.impedance else None,
+                       t.part)
+
+    def cables(self, items, loc) -> tuple[Cable, ...]:
+        out = []
+        for i, c in enumerate(items):
+            part = self.part_of(c.part, loc + (i, "part"))
+            if part.line is None:
+                raise self.err(M.NOT_A_CABLE, loc + (i, "part"), value=c.part)
+            out.append(Cable(c.part, part, c.length))
+        return tuple(out)
+
+
+def _geometries(raw: RawDesign, err) -> dict[str, Geometry]:
+    """The board's named trace geometries, each with what its kind needs."""
     geometries = {
         name: Geometry(name, g.kind, g.width, g.height, g.spacing, g.thickness, g.er, g.method)
         for name, g in raw.board.geometry.items()
@@ -443,124 +540,55 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict,
             raise err(M.SPACING_NOT_ABOVE_COPPER, loc + ("spacing",),
                       value=format_si(g.spacing, "m"),
                       expected=f"more than the copper thickness, {format_si(g.thickness, 'm')}")
+    return geometries
 
-    swapped: set[str] = set()
 
-    def part_of(part_id: str, loc) -> Part:
-        # A part whose file does not validate is the library's error at that file (it
-        # names this place); an unknown id is this file's error.
-        try:
-            return library.get(part_id, file=fname, line=line_of(index, loc),
-                               field=dotted_path(loc))
-        except PinlibError as e:
-            if e.problem != M.UNKNOWN_PART:
-                raise
-            raise err(M.UNKNOWN_PART, loc, value=part_id, hint=e.hint) from None
-
-    def device(d: RawDevice, loc) -> Device:
-        part_id = swaps.get(d.ref, d.part)
-        if d.ref in swaps:
-            swapped.add(d.ref)
-        part = part_of(part_id, loc + ("part",))
-        if part.abstract:
-            raise err(M.ABSTRACT_ON_BOARD, loc + ("part",),
-                      value=part_id, hint="place a part that extends it, or `pinlib parts new`")
-        if part.category == "cable":
-            raise err(M.CABLE_AS_DEVICE, loc + ("part",),
-                      value=part_id)
-        if d.supply is not None and not d.supply > 0:
-            raise err(M.SUPPLY_NOT_POSITIVE, loc + ("supply",), value=format_si(d.supply, "V"))
-        role = "peripheral" if d.role == "target" else d.role
-        return Device(d.ref, part_id, part, role, d.supply, d.switched, d.series_resistor,
-                      d.side, d.internal_pullups, d.pin, d.capacitance_tolerance, loc)
-
-    def too_many_sections(count, loc):
-        return err(M.TOO_MANY_SECTIONS, loc, value=f"{count:,} sections",
-                   expected=f"at most {MAX_SECTIONS_PER_LINE:,} sections",
-                   hint="join stretches of one geometry into one (their lengths add up)")
-
-    def sections(t: RawTrace | RawSection | None, loc) -> tuple[Section, ...]:
-        if t is None:
-            return ()
-        subs = getattr(t, "sections", ())
-        if subs:
-            if t.length is not None or t.geometry or t.capacitance or t.part:
-                raise err(M.SECTIONS_OR_STRETCH, loc + ("sections",))
-            if len(subs) > MAX_SECTIONS_PER_LINE:  # before building any of them
-                raise too_many_sections(len(subs), loc + ("sections",))
-            out: list[Section] = []
-            for i, s in enumerate(subs):
-                out.extend(sections(s, loc + ("sections", i)))
-            return tuple(out)
-        if t.length is None:
-            raise err(M.TRACE_NEEDS_LENGTH, loc + ("length",))
-        if t.part:
-            cable = part_of(t.part, loc + ("part",))
-            if cable.line is None:
-                raise err(M.NOT_A_CABLE, loc + ("part",), value=t.part)
-            return (Section(t.length, None, cable.line.capacitance.value,
-                            cable.line.delay.value if cable.line.delay else None,
-                            cable.line.impedance.value if cable.line.impedance else None,
-                            t.part),)
-        if t.geometry:
-            if t.geometry not in geometries:
-                raise err(M.UNKNOWN_GEOMETRY, loc + ("geometry",), value=t.geometry,
-                          hint="defined: " + (", ".join(geometries) or "none; add "
-                                              "[board.geometry.NAME]"))
-            if t.capacitance is not None or t.delay is not None:
-                raise err(M.GEOMETRY_OR_PER_LENGTH, loc + ("capacitance",))
-            return (Section(t.length, geometries[t.geometry]),)
-        if t.capacitance is None:
-            raise err(M.TRACE_NEEDS_GEOMETRY, loc + ("geometry",),
-                      expected="geometry = \"NAME\" or capacitance = "
-                      "\"0.8 pF/cm\"")
-        return (Section(t.length, None, t.capacitance, t.delay),)
-
-    def cables(items, loc) -> tuple[Cable, ...]:
-        out = []
-        for i, c in enumerate(items):
-            part = part_of(c.part, loc + (i, "part"))
-            if part.line is None:
-                raise err(M.NOT_A_CABLE, loc + (i, "part"), value=c.part)
-            out.append(Cable(c.part, part, c.length))
-        return tuple(out)
-
+def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict,
+           index: dict | None = None) -> Design:
+    index = line_index(text) if index is None else index
+    fname = str(path) if path else None
+    r = _Resolver(library, fname, index, swaps)
+    r.geometries = _geometries(raw, r.err)
     buses = []
-    ids = set()
+    ids: set[str] = set()
     for bi, rb in enumerate(raw.bus):
-        bloc = ("bus", bi)
-        if rb.id in ids:
-            raise err(M.DUPLICATE_BUS_ID, bloc + ("id",), value=rb.id)
-        ids.add(rb.id)
-        modes = MODES.get(rb.protocol)
-        mode = rb.mode
-        if modes:
-            mode = mode or modes[1 if rb.protocol == "i2c" else 0]
-            if mode not in modes:
-                raise err(M.UNKNOWN_MODE, bloc + ("mode",), value=rb.mode,
-                          expected="one of " + ", ".join(modes))
-        elif rb.mode is not None:
-            raise err(M.BUS_HAS_NO_MODE.format(protocol=rb.protocol), bloc + ("mode",),
-                      value=rb.mode,
-                      hint="give its clock instead" if rb.protocol == "spi" else None)
-        if rb.clock is not None and not rb.clock > 0.0:
-            # Every engine divides by the clock (its period, its budget).
-            raise err(M.CLOCK_NOT_POSITIVE, bloc + ("clock",), value=format_si(rb.clock, "Hz"),
-                      expected='a clock such as "400 kHz"')
-        if protocols.is_open_drain(rb.protocol):
-            bus = _open_drain_bus(rb, bloc, mode, device, sections, cables, err)
-        else:
-            bus = _push_pull_bus(rb, bloc, device, sections, err)
-        buses.append(bus)
-    _one_part_per_reference(buses, err, fname, index)
-    unknown = set(swaps) - swapped
+        buses.append(_bus(rb, ("bus", bi), ids, r))
+    _one_part_per_reference(buses, r.err, fname, index)
+    unknown = set(swaps) - r.swapped
     if unknown:
         raise DesignError(M.NO_SUCH_REFERENCE, field="swap",
                           value=sorted(unknown)[0], file=fname)
-    design = Design(raw.title, Path(path) if path else None, tuple(buses), geometries, library,
-                    raw.warn_margin, raw.distribution, raw.description, text)
+    design = Design(raw.title, Path(path) if path else None, tuple(buses), r.geometries,
+                    library, raw.warn_margin, raw.distribution, raw.description, text)
     object.__setattr__(design, "_raw", raw)
     return design
+
+
+def _bus(rb: RawBus, bloc, ids: set[str], r: _Resolver) -> Bus:
+    """One bus of the file: its id unique, its mode and clock valid, then built by its
+    kind (open-drain or push-pull)."""
+    err = r.err
+    if rb.id in ids:
+        raise err(M.DUPLICATE_BUS_ID, bloc + ("id",), value=rb.id)
+    ids.add(rb.id)
+    modes = MODES.get(rb.protocol)
+    mode = rb.mode
+    if modes:
+        mode = mode or modes[1 if rb.protocol == "i2c" else 0]
+        if mode not in modes:
+            raise err(M.UNKNOWN_MODE, bloc + ("mode",), value=rb.mode,
+                      expected="one of " + ", ".join(modes))
+    elif rb.mode is not None:
+        raise err(M.BUS_HAS_NO_MODE.format(protocol=rb.protocol), bloc + ("mode",),
+                  value=rb.mode,
+                  hint="give its clock instead" if rb.protocol == "spi" else None)
+    if rb.clock is not None and not rb.clock > 0.0:
+        # Every engine divides by the clock (its period, its budget).
+        raise err(M.CLOCK_NOT_POSITIVE, bloc + ("clock",), value=format_si(rb.clock, "Hz"),
+                  expected='a clock such as "400 kHz"')
+    if protocols.is_open_drain(rb.protocol):
+        return _open_drain_bus(rb, bloc, mode, r.device, r.sections, r.cables, err)
+    return _push_pull_bus(rb, bloc, r.device, r.sections, err)
 
 
 def _one_part_per_reference(buses, err, fname, index) -> None:
@@ -622,6 +650,24 @@ _SEGMENT_KEYS = ("supply", "supply_tolerance", "pullup", "pullup_tolerance", "pu
 
 
 def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bus:
+    own, seg_locs = _segment_tables(rb, bloc, err)
+    segments = [_segment(rb, rs, sloc, si, len(own), device, sections, cables, err)
+                for si, (rs, sloc) in enumerate(zip(own, seg_locs, strict=True))]
+    all_devices: list[Device] = [d for seg in segments for d in seg.devices]
+    if not any(d.is_controller for d in all_devices):
+        raise err(M.BUS_NEEDS_CONTROLLER, bloc + ("devices",),
+                  hint="mark one device role = \"controller\"")
+    _check_open_drain_pins(rb, segments, err)
+    _check_bridges(segments, err)
+    return Bus(rb.id, rb.protocol, mode, rb.clock, segments[0].supply,
+               segments[0].supply_tolerance, tuple(segments), tuple(all_devices), {},
+               rb.spi_mode, rb.title, segments[0].capacitance_tolerance,
+               segments[0].length_tolerance, bloc)
+
+
+def _segment_tables(rb: RawBus, bloc, err) -> tuple[list, list]:
+    """The raw tables of an open-drain bus's segments and their places in the file: its
+    ``[[bus.segment]]`` tables, or the bus itself as its one segment."""
     if rb.lines:
         raise err(M.OPEN_DRAIN_NO_LINES, bloc + ("lines",),
                   hint="give the bus (or each segment) a trace")
@@ -635,46 +681,44 @@ def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bu
             raise err(M.KEY_IN_SEGMENTS.format(key=key), bloc + (key,),
                       hint="give each [[bus.segment]] its own")
     if not raws:
-        raws = [RawSegment(id=rb.id)]
-        seg_locs = [bloc]
-        own = [rb]
-    else:
-        seg_locs = [bloc + ("segment", i) for i in range(len(raws))]
-        own = raws
-    segments = []
-    all_devices: list[Device] = []
-    for si, (rs, sloc) in enumerate(zip(own, seg_locs, strict=True)):
-        # A segment key falls back to the bus's own value.
-        def pick(key, default=None, rs=rs):
-            v = getattr(rs, key)
-            if v is None and rs is not rb:
-                v = getattr(rb, key)
-            return default if v is None else v
+        return [rb], [bloc]
+    return raws, [bloc + ("segment", i) for i in range(len(raws))]
 
-        supply = pick("supply")
-        if supply is None:
-            raise err(M.BUS_NEEDS_PULLUP_SUPPLY, sloc + ("supply",),
-                      expected="supply = \"3.3 V\"")
-        if supply <= 0:
-            raise err(M.SUPPLY_NOT_POSITIVE, sloc + ("supply",), value=supply)
-        devices = tuple(device(d, sloc + ("devices", i)) for i, d in enumerate(rs.devices))
-        seg_id = rs.id or (rb.id if len(own) == 1 else f"{rb.id}-{si + 1}")
-        cab = cables(rs.cables or (rb.cables if rs is not rb else ()), sloc + ("cables",))
-        series = pick("pullup_series", "E24")
-        from pinlib.core.eseries import SERIES_NAMES
-        if series.upper() not in SERIES_NAMES:
-            raise err(M.UNKNOWN_NUMBER_SERIES, sloc + ("pullup_series",), value=series,
-                      expected="one of " + ", ".join(SERIES_NAMES))
-        segments.append(Segment(
-            seg_id, supply, pick("supply_tolerance", 0.0), pick("pullup", "auto"),
-            pick("pullup_tolerance", 0.01), series.upper(),
-            sections(pick("trace"), sloc + ("trace",)), pick("extra_capacitance", 0.0),
-            pick("capacitance_tolerance", 0.0), pick("length_tolerance", 0.0), cab, devices,
-            sloc))
-        all_devices.extend(devices)
-    if not any(d.is_controller for d in all_devices):
-        raise err(M.BUS_NEEDS_CONTROLLER, bloc + ("devices",),
-                  hint="mark one device role = \"controller\"")
+
+def _segment(rb: RawBus, rs, sloc, si: int, count: int, device, sections, cables,
+             err) -> Segment:
+    """One segment of an open-drain bus; a key it does not give falls back to the bus's."""
+    def pick(key, default=None):
+        v = getattr(rs, key)
+        if v is None and rs is not rb:
+            v = getattr(rb, key)
+        return default if v is None else v
+
+    supply = pick("supply")
+    if supply is None:
+        raise err(M.BUS_NEEDS_PULLUP_SUPPLY, sloc + ("supply",),
+                  expected="supply = \"3.3 V\"")
+    if supply <= 0:
+        raise err(M.SUPPLY_NOT_POSITIVE, sloc + ("supply",), value=supply)
+    devices = tuple(device(d, sloc + ("devices", i)) for i, d in enumerate(rs.devices))
+    seg_id = rs.id or (rb.id if count == 1 else f"{rb.id}-{si + 1}")
+    cab = cables(rs.cables or (rb.cables if rs is not rb else ()), sloc + ("cables",))
+    series = pick("pullup_series", "E24")
+    from pinlib.core.eseries import SERIES_NAMES
+    if series.upper() not in SERIES_NAMES:
+        raise err(M.UNKNOWN_NUMBER_SERIES, sloc + ("pullup_series",), value=series,
+                  expected="one of " + ", ".join(SERIES_NAMES))
+    return Segment(
+        seg_id, supply, pick("supply_tolerance", 0.0), pick("pullup", "auto"),
+        pick("pullup_tolerance", 0.01), series.upper(),
+        sections(pick("trace"), sloc + ("trace",)), pick("extra_capacitance", 0.0),
+        pick("capacitance_tolerance", 0.0), pick("length_tolerance", 0.0), cab, devices,
+        sloc)
+
+
+def _check_open_drain_pins(rb: RawBus, segments: list[Segment], err) -> None:
+    """A bridging part names its side, no other part does, and every part has the pins
+    of the protocol (on its side)."""
     for seg in segments:
         for d in seg.devices:
             side = d.side
@@ -689,6 +733,10 @@ def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bu
                               else M.PART_LACKS_PIN.format(function=fn),
                               d.loc + ("part",), value=d.part_id,
                               hint="an I2C/SMBus device needs SDA and SCL pins")
+
+
+def _check_bridges(segments: list[Segment], err) -> None:
+    """Every bridging part sits in two segments, one on each side."""
     bridges: dict[str, list[str]] = {}
     for seg in segments:
         for d in seg.devices:
@@ -699,10 +747,6 @@ def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bu
             loc = next(d.loc for s in segments for d in s.devices if d.ref == ref)
             raise err(M.BRIDGE_IN_TWO_SEGMENTS, loc + ("ref",), value=ref,
                       hint=f"found side(s): {', '.join(sides)}")
-    return Bus(rb.id, rb.protocol, mode, rb.clock, segments[0].supply,
-               segments[0].supply_tolerance, tuple(segments), tuple(all_devices), {},
-               rb.spi_mode, rb.title, segments[0].capacitance_tolerance,
-               segments[0].length_tolerance, bloc)
 
 
 def _push_pull_bus(rb: RawBus, bloc, device, sections, err) -> Bus:
