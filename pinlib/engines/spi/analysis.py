@@ -98,11 +98,22 @@ def _finite_or_inf(x: float) -> float:
 
 
 def _sourced_text(device: Device, name: str) -> str:
+    """Where a timing value of a device's part comes from, for a check's ``source``: the
+    part whose file set it (for a value inherited through ``extends``, the class it came
+    from, not the part placed) and that value's own source or basis.  The placed part's
+    provenance stands in only for a value the part states itself without a source, or
+    for a value it lacks."""
     got = getattr(device.part.timing, name)
     part = device.part
-    text = (got.source if got is not None and got.source else None) or \
-        part.provenance.source or part.provenance.basis
-    return f"{device.part_id} {name}: {text}"
+    own_text = part.provenance.source or part.provenance.basis
+    if got is None:
+        return f"{device.part_id} {name}: {own_text}"
+    origin = got.origin or device.part_id
+    if origin == device.part_id:
+        text = got.source or own_text
+    else:
+        text = got.source or got.basis or got.provenance_text()
+    return f"{origin} {name}: {text}"
 
 
 def _timing_value(device: Device, name: str) -> float | None:
