@@ -10,8 +10,11 @@ from pathlib import Path
 import pytest
 
 from pinlib.core.protocols import protocol
-from pinlib.engines import opendrain, pushline, pushpull, spi
+from pinlib.engines import opendrain, pushpull, spi
 from pinlib.engines.dispatch import check_design
+from pinlib.engines.pushline import waves
+from pinlib.engines.spi import evaluate as spi_evaluate
+from pinlib.engines.spi import sweeps as spi_sweeps
 from pinlib.model.design import load_design
 from pinlib.present import plotdata
 from pinlib.present.review import build_review
@@ -37,9 +40,13 @@ def counts(monkeypatch):
         monkeypatch.setattr(module, name, counted)
 
     by_bus(opendrain, "collect")
+    # spi_analysis as the package exports it (a lazy import looks it up there) and as
+    # the modules calling it look it up in their own
     by_bus(spi, "spi_analysis")
+    by_bus(spi_evaluate, "spi_analysis")
+    by_bus(spi_sweeps, "spi_analysis")
     by_bus(pushpull, "gpio_analyses")
-    solve = pushline._unit_edge
+    solve = waves._unit_edge
 
     def counted_solve(stretches, r_source, t_ramp, c_far, distributed):
         key = (tuple((s.z0, s.td, s.c) for s in stretches), r_source, t_ramp, c_far,
@@ -47,7 +54,8 @@ def counts(monkeypatch):
         seen["solve"][key] += 1
         return solve(stretches, r_source, t_ramp, c_far, distributed)
 
-    monkeypatch.setattr(pushline, "_unit_edge", counted_solve)
+    # simulate_edge looks the solver up in its own module
+    monkeypatch.setattr(waves, "_unit_edge", counted_solve)
     return seen
 
 

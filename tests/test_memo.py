@@ -7,9 +7,9 @@ from pathlib import Path
 
 import numpy as np
 
-from pinlib.engines import memo, pushline
+from pinlib.engines import memo
 from pinlib.engines.dispatch import check_design
-from pinlib.engines.pushline import Stretch, simulate_edge
+from pinlib.engines.pushline import Stretch, simulate_edge, waves
 from pinlib.model.design import load_design
 
 DEMO = Path(__file__).resolve().parents[1] / "workbooks" / "designs" / "demo-board.toml"
@@ -21,13 +21,14 @@ LINE = [Stretch(length=0.1, z0=50.0, td=0.6e-9, c=0.6e-9 / 50.0, label="trace")]
 
 def _counting(monkeypatch) -> list:
     calls = []
-    solve = pushline._unit_edge
+    solve = waves._unit_edge
 
     def counted(*args):
         calls.append(args)
         return solve(*args)
 
-    monkeypatch.setattr(pushline, "_unit_edge", counted)
+    # simulate_edge looks the solver up in its own module
+    monkeypatch.setattr(waves, "_unit_edge", counted)
     return calls
 
 

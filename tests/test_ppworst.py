@@ -90,11 +90,11 @@ def test_search_finds_the_worst_vertex_and_screens_above_the_limit():
 
 
 def test_shared_line_analyses_change_no_number(monkeypatch):
-    from pinlib.engines import pushline
+    from pinlib.engines.pushline import line
 
     d = _design()
     bus = d.buses[0]
     shared = evaluate_bus(bus, d).to_json()
     # every line analysed afresh at every corner: derived from the same engine
-    monkeypatch.setattr(pushline, "_line_key", lambda *a: None)
+    monkeypatch.setattr(line, "_line_key", lambda *a: None)
     assert evaluate_bus(bus, d).to_json() == shared

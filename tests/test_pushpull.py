@@ -11,8 +11,10 @@ from __future__ import annotations
 
 import dataclasses
 import doctest
+import importlib
 import inspect
 import math
+import pkgutil
 import re
 from pathlib import Path
 
@@ -568,6 +570,9 @@ def test_docstring_parameters_match_signature_and_carry_units(func):
 
 
 def test_docstring_examples():
-    result = doctest.testmod(pushline, optionflags=doctest.NORMALIZE_WHITESPACE)
-    assert result.attempted > 0
-    assert result.failed == 0
+    # the examples sit in the package's modules (auto_series_resistor's in .termination)
+    modules = [pushline] + [importlib.import_module(f"{pushline.__name__}.{m.name}")
+                            for m in pkgutil.iter_modules(pushline.__path__)]
+    results = [doctest.testmod(m, optionflags=doctest.NORMALIZE_WHITESPACE) for m in modules]
+    assert sum(r.attempted for r in results) > 0
+    assert sum(r.failed for r in results) == 0

@@ -8,7 +8,9 @@ from __future__ import annotations
 
 import dataclasses
 import doctest
+import importlib
 import inspect
+import pkgutil
 import re
 from pathlib import Path
 
@@ -262,6 +264,64 @@ def test_docstring_parameters_match_signature_and_carry_units(func):
 
 
 def test_docstring_examples():
-    result = doctest.testmod(spi, optionflags=doctest.NORMALIZE_WHITESPACE)
-    assert result.attempted > 0
-    assert result.failed == 0
+    # the examples sit in the package's modules
+    modules = [spi] + [importlib.import_module(f"{spi.__name__}.{m.name}")
+                       for m in pkgutil.iter_modules(spi.__path__)]
+    results = [doctest.testmod(m, optionflags=doctest.NORMALIZE_WHITESPACE) for m in modules]
+    assert sum(r.attempted for r in results) > 0
+    assert sum(r.failed for r in results) == 0
+
+
+# ---------------------------------------------------------------- issue 13, item 5
+# An invented team part (demo data) that extends the built-in ADC class and states only
+# its own f_max, under its own provenance.
+TEAM_ADC = """\
+format = "pinlib.part/1"
+id = "adc-acme"
+title = "Invented ADC (demo data)"
+category = "converter"
+extends = "adc-spi"
+provenance = { basis = "datasheet", source = "datasheet rev B" }
+
+[timing]
+f_max = "20 MHz"
+"""
+
+TEAM_DESIGN = """\
+format = "pinlib.design/1"
+title = "timing provenance (invented)"
+
+[[bus]]
+id = "s"
+protocol = "spi"
+clock = "10 MHz"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U7", part = "adc-acme" },
+]
+lines.sclk = { length = "3 cm", capacitance = "1 pF/cm" }
+lines.copi = { length = "3 cm", capacitance = "1 pF/cm" }
+lines.cipo = { length = "3 cm", capacitance = "1 pF/cm" }
+"""
+
+
+def test_timing_sources_name_the_class_an_inherited_value_came_from(tmp_path, monkeypatch):
+    # 13.5: t_setup and t_hold of adc-acme are adc-spi's (inherited), named with
+    # adc-spi's own source; its own f_max keeps its own provenance
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    (tmp_path / "adc-acme.toml").write_text(TEAM_ADC, encoding="utf-8")
+    (tmp_path / "d.toml").write_text(TEAM_DESIGN, encoding="utf-8")
+    design = load_design(tmp_path / "d.toml", library_folders=[tmp_path])
+    res = evaluate_bus(design.bus("s"), design)
+    source = {(c.id, c.subject): c.source for c in res.checks}
+    # the class file's text: pinlib/devices/converter/adc-spi.toml, [timing]
+    assert source[("copi-setup", "U7")] == \
+        "adc-spi t_setup: typical of the class (common practice)"
+    assert source[("copi-hold", "U7")] == \
+        "adc-spi t_hold: typical of the class (common practice)"
+    assert source[("f-max", "U7")] == "adc-acme f_max: datasheet rev B"
+    sa = spi.spi_analysis(design.bus("s"), design)
+    (u7,) = sa.peripherals
+    assert u7.sources["t_valid"].startswith("adc-spi t_valid: ")
+    assert not any("rev B" in s for n, s in u7.sources.items() if n != "f_max")

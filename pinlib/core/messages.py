@@ -136,7 +136,7 @@ FILE_NO_LONGER_HOLDS_PART = "the file no longer holds this part"
 CANNOT_KEEP_LAYOUT = "cannot set this value while keeping the file's layout"
 NO_SUCH_PIN = "the part has no such pin"
 
-# ---------------------------------------------------------------- pinlib/model/design.py
+# ---------------------------------------------------------------- pinlib/model/design/
 NOT_A_DESIGN = "not a design file"
 DESIGN_LIBRARY_MISSING = "a library folder named by the design does not exist"
 LOOKED_FOR = "looked for {path}"
@@ -296,7 +296,7 @@ FIT_TWO_DRIVERS = ("the points fit two drivers within {tolerance}: r_out {r_out}
                    "used")
 
 # ---------------------------------------------------------------- bus engines
-# pinlib/engines/limits.py, opendrain.py, pushpull.py, pushline.py
+# pinlib/engines/limits.py, opendrain.py, pushpull.py, pushline/
 NOT_OPEN_DRAIN_BUS = "not an open-drain bus"
 NOT_PUSH_PULL_BUS = "the push-pull engine evaluates spi and gpio buses"
 NO_DRIVER_ON_LINE = "no device drives this line"
@@ -304,7 +304,7 @@ NO_DRIVER_ON_LINE = "no device drives this line"
 PIN_VALUE_AT_SUPPLY = "{part} as {ref} on bus '{bus}' at its supply {vdd} ({where})"
 MET_EVALUATING_BUS = "met evaluating bus '{bus}', in the value '{field}' computed from it"
 TOO_MANY_TIME_STEPS = "the line's waveform would need {steps} time steps (at most {limit})"
-# pinlib/engines/spi.py
+# pinlib/engines/spi/
 UNKNOWN_SPI_MODE = "unknown SPI mode"
 NEGATIVE_PERIOD_COEFFICIENT = "a margin's period coefficient must not be negative"
 CONTROLLER_LACKS_PUSH_PULL_PIN = "the controller has no push-pull {function} pin"

@@ -1,0 +1,129 @@
+"""What the engine worked out for one line (:class:`LineAnalysis`) and the drive cases of its
+drivers."""
+
+from __future__ import annotations
+
+import math
+import warnings
+from collections.abc import Sequence
+from dataclasses import dataclass, field
+
+from pinlib.core.quantity import format_si
+from pinlib.engines.pushline.drive import DriveCase, drive_case
+from pinlib.engines.pushline.pins import Endpoint
+from pinlib.model.design import Line
+from pinlib.model.result import LineResult
+
+
+@dataclass
+class LineAnalysis:
+    """Everything the engine worked out for one line.
+
+    Attributes
+    ----------
+    signal : str
+        The signal name. [1]
+    line : Line
+        The line of the design. [1]
+    stretches : list of Stretch
+        Its sections. [1]
+    drivers, loads, receivers : list of Endpoint
+        Pins that drive it; every pin on it; the pins that sense it. [1]
+    cases : dict
+        Final :class:`DriveCase` by driver reference designator. [1]
+    unterminated : dict or None
+        The cases without a series resistor, when "auto" chose one. [1]
+    rs : float
+        Series resistor used. [Ω]
+    rs_ideal : float or None
+        ``Z0 - r_out`` when "auto" considered it. [Ω]
+    long : bool
+        Electrically long by :data:`LONG_LINE_RULE`. [1]
+    ratio : float
+        One-way delay over the driver's edge into the pins alone. [1]
+    edge_alone : float
+        That edge. [s]
+    models : dict
+        The driver model (:class:`~pinlib.physics.driver.Driver`) by driver reference
+        designator. [1]
+    result : LineResult
+        Figures and checks. [1]
+    """
+
+    signal: str
+    line: Line
+    stretches: list
+    drivers: list
+    loads: list
+    receivers: list
+    cases: dict = field(default_factory=dict)
+    unterminated: dict | None = None
+    rs: float = 0.0
+    rs_ideal: float | None = None
+    long: bool = False
+    ratio: float = 0.0
+    edge_alone: float = 0.0
+    models: dict = field(default_factory=dict)
+    result: LineResult = field(default_factory=LineResult)
+
+    @property
+    def trace_c(self) -> float:
+        return sum(s.c for s in self.stretches)
+
+    @property
+    def delay(self) -> float:
+        return sum(s.td for s in self.stretches)
+
+    @property
+    def z0(self) -> float:
+        return next((s.z0 for s in self.stretches if s.td > 0), math.nan)
+
+    def without_series(self, ref: str) -> DriveCase | None:
+        """The case of driver ``ref`` without the line's series resistor, solved on
+        request (a chart's comparison trace) and kept.
+
+        "auto" kept it when it chose a resistor (``unterminated``); with a fixed
+        resistor it is solved here with the same sections, driver model and loads.  An
+        open-drain driver has no such case (None).  With no resistor on the line it is
+        the final case itself.
+        """
+        if self.rs <= 0:
+            return self.cases[ref]
+        kept = (self.unterminated or {}).get(ref)
+        case = self.cases[ref]
+        if kept is not None or case.driver.pin.drive == "open-drain":
+            return kept
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")  # the engine already noted its warnings
+            kept = drive_case(self.stretches, case.driver, self.models[ref],
+                              _others(self.loads, case.driver), 0.0,
+                              self.line.extra_capacitance, long=self.long)
+        self.unterminated = {**(self.unterminated or {}), ref: kept}
+        return kept
+
+
+def _others(pins: Sequence[Endpoint], driver: Endpoint) -> list[Endpoint]:
+    return [p for p in pins if p.device is not driver.device]
+
+
+def _cases(a: LineAnalysis, rs: float, pullup) -> dict:
+    out = {}
+    for d in a.drivers:
+        rp, vp = pullup.get(d.ref, (None, None))
+        out[d.ref] = drive_case(a.stretches, d, a.models[d.ref], _others(a.loads, d), rs,
+                                a.line.extra_capacitance, long=a.long, r_pullup=rp,
+                                v_pullup=vp)
+    return out
+
+
+def _fmt(x, unit):
+    return format_si(x, unit)
+
+
+def _figures_of(cases: dict) -> dict:
+    return {
+        "edge_rise_time": max(c.rise.t_edge for c in cases.values()),
+        "edge_fall_time": max(c.fall.t_edge for c in cases.values()),
+        "overshoot": max(c.rise.overshoot for c in cases.values()),
+        "undershoot": max(c.fall.undershoot for c in cases.values()),
+    }

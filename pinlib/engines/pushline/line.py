@@ -1,0 +1,226 @@
+"""One line through the engine: :func:`analyse_line` (memoized within a run) in its steps."""
+
+from __future__ import annotations
+
+import warnings
+from collections.abc import Sequence
+
+from pinlib.core import messages as M
+from pinlib.core.errors import DesignError, InputError
+from pinlib.engines import memo
+from pinlib.engines.pushline.analysis import LineAnalysis, _figures_of, _fmt, _others
+from pinlib.engines.pushline.drive import _driver_model, _open_drain_model, _pullups
+from pinlib.engines.pushline.pins import Endpoint
+from pinlib.engines.pushline.rules import (
+    _FIGURE_UNITS,
+    LINE_DELAY_RULE,
+    LONG_LINE_RULE,
+    LUMPED_RULE,
+)
+from pinlib.engines.pushline.sections import line_model, stretches_of
+from pinlib.engines.pushline.sichecks import _si_checks
+from pinlib.engines.pushline.termination import _solve_cases, _termination_check
+from pinlib.engines.pushline.waves import _TooManySteps
+from pinlib.model.design import Line
+from pinlib.model.result import Check, LineResult, check_max, rule_of_thumb
+from pinlib.physics import driver as drv
+
+
+def analyse_line(signal: str, line: Line, drivers: Sequence[Endpoint],
+                 loads: Sequence[Endpoint], receivers: Sequence[Endpoint], *,
+                 clock: float | None = None, clock_line: bool = False,
+                 warn_margin: float = 0.10, bus_id: str | None = None) -> LineAnalysis:
+    """Evaluate one routed push-pull or open-drain line.
+
+    Parameters
+    ----------
+    signal : str
+        Signal name (``"sclk"``, ``"reset"``...). [1]
+    line : Line
+        Its routing from the design. [1]
+    drivers : sequence of Endpoint
+        The pins that drive it, each evaluated in turn. [1]
+    loads : sequence of Endpoint
+        Every pin on it (drivers included; a driver never loads itself). [1]
+    receivers : sequence of Endpoint
+        The pins whose thresholds matter (inputs). [1]
+    clock : float, optional
+        Clock (or toggle) rate for the edge-time check. [Hz]
+    clock_line : bool, optional
+        Ringing is a failure (double clocking) rather than a warning. [1]
+    warn_margin : float, optional
+        Relative margin under which a passing check warns. [1]
+    bus_id : str, optional
+        The bus the line belongs to, named in an error about the line. [1]
+
+    Returns
+    -------
+    LineAnalysis
+        With its ``result`` filled.
+
+    Raises
+    ------
+    InputError
+        When a waveform record of the line would need more than
+        :data:`MAX_TIME_STEPS` time steps.
+
+    Notes
+    -----
+    Inside a :func:`pinlib.engines.memo.run_scope` a line analysed with identical inputs
+    is analysed once (the corners of a bus's tolerances vary one line's length at a time);
+    the analysis returned is then shared and must not be changed.
+    """
+    key = _line_key(signal, line, drivers, loads, receivers, clock, clock_line,
+                    warn_margin, bus_id)
+    if key is None or not memo.active():
+        return _analyse_line(signal, line, drivers, loads, receivers, clock, clock_line,
+                             warn_margin, bus_id)
+    return memo.remember(key, lambda: _analyse_line(
+        signal, line, drivers, loads, receivers, clock, clock_line, warn_margin, bus_id))
+
+
+def _endpoint_key(e: Endpoint) -> tuple:
+    d = e.device
+    return (d.ref, d.part_id, id(d.part), d.role, d.supply, d.switched, d.series_resistor,
+            d.side, d.internal_pullups, d.pin, d.capacitance_factor, e.pin_name, id(e.pin),
+            float(e.vdd))
+
+
+def _line_key(signal, line, drivers, loads, receivers, *rest) -> tuple | None:
+    """An exact key of a line analysis's inputs (parts by identity: one library serves a
+    run), or None when an input is not hashable."""
+    key = ("analyse_line", signal, line, tuple(_endpoint_key(e) for e in drivers),
+           tuple(_endpoint_key(e) for e in loads), tuple(_endpoint_key(e) for e in receivers),
+           *rest)
+    try:
+        hash(key)
+    except TypeError:
+        return None
+    return key
+
+
+def _analyse_line(signal, line, drivers, loads, receivers, clock, clock_line, warn_margin,
+                  bus_id) -> LineAnalysis:
+    res = LineResult(signal=signal)
+    # Validity warnings of the trace models and of the solver become notes of the line.
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        try:
+            a = _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line,
+                         warn_margin)
+        except _TooManySteps as exc:
+            where = f"bus.{bus_id}.lines.{signal}" if bus_id else f"lines.{signal}"
+            raise InputError(exc.problem, field=where, value=exc.value,
+                             hint=exc.hint) from None
+    for w in caught:
+        text = f"{signal}: {w.message}"
+        if text not in res.notes:
+            res.notes.append(text)
+    return a
+
+
+def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, warn_margin):
+    """The line analysis in its steps: sections, driver models, electrical length, the
+    series resistor and the final cases, checks, figures."""
+    notes = res.notes
+    stretches = stretches_of(line.sections)
+    a = LineAnalysis(signal, line, stretches, list(drivers), list(loads), list(receivers),
+                     result=res)
+    if not a.drivers:
+        raise DesignError(M.NO_DRIVER_ON_LINE, field=f"lines.{signal}",
+                          hint="a push-pull or open-drain pin must sit on the line")
+    if any(not s.td > 0 for s in stretches) and stretches:
+        notes.append("a section without a delay counts as a lumped capacitance at the far end")
+    pullup = _driver_models(a, res)
+    if not a.drivers:
+        for name, unit in _FIGURE_UNITS:
+            res.figure(name, None, unit)
+        return a
+    _electrical_length(a, notes)
+    _solve_cases(a, pullup, clock, clock_line, warn_margin, notes)
+    _add_checks(a, res, clock, clock_line, warn_margin)
+    _add_figures(a, res)
+    return a
+
+
+def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
+    """Fill ``a.models``; open-drain drivers pull against the net's pull-ups.  A driver
+    with no pull-up to pull against fails and leaves ``a.drivers``.  Returns the
+    (pull-up, its rail) of each open-drain driver."""
+    pullup = {}
+    stuck = []
+    for d in a.drivers:
+        if d.pin.drive == "open-drain":
+            rp, rail = _pullups(_others(a.loads, d), d)
+            if rp is None:
+                res.add(Check("pull-up", "fail", None, None, "Ω", None,
+                              "an open-drain line needs a pull-up (common practice)",
+                              f"{d.label} is open-drain and no pin on {a.signal} carries a "
+                              "pull-up: the line never rises", subject=d.ref,
+                              fix="use a part with an on-board pull-up, or enable internal "
+                                  "pull-ups"))
+                stuck.append(d)
+                continue
+            pullup[d.ref] = (rp, rail)
+            a.models[d.ref] = _open_drain_model(d.pin, d.vdd, rp, res.notes)
+        else:
+            a.models[d.ref] = _driver_model(d, res.notes)
+    a.drivers = [d for d in a.drivers if d not in stuck]
+    return pullup
+
+
+def _electrical_length(a: LineAnalysis, notes: list) -> None:
+    """Electrical length against the fastest edge into the pins alone."""
+    alone = []
+    for d in a.drivers:
+        m = a.models[d.ref]
+        c_pins = sum(p.c_in for p in _others(a.loads, d)) + a.line.extra_capacitance
+        alone.append(float(drv.edge_time(m.r_fall, m.t_ramp_fall, c_pins)))
+        if d.pin.drive != "open-drain":
+            alone.append(float(drv.edge_time(m.r_rise, m.t_ramp_rise, c_pins)))
+    a.edge_alone = min(alone)
+    a.long, a.ratio = line_model(a.stretches, a.edge_alone)
+    notes.append(f"one-way delay {_fmt(a.delay, 's')} is {a.ratio:.2f} of the driver's "
+                 f"{_fmt(a.edge_alone, 's')} edge into the pins alone: "
+                 f"{'electrically long' if a.long else 'electrically short'} "
+                 f"({LONG_LINE_RULE})")
+
+
+def _add_checks(a: LineAnalysis, res: LineResult, clock, clock_line, warn_margin) -> None:
+    """The signal-integrity checks of the final cases, the line delay, the series
+    termination "auto" chose, and a note for a waveform that had not settled."""
+    for c in _si_checks(a, a.cases, clock, clock_line, warn_margin):
+        res.add(c)
+    if clock and a.delay > 0:
+        res.add(rule_of_thumb(check_max(
+            "line-delay", a.delay, 1.0 / clock, "s", LINE_DELAY_RULE,
+            f"one-way delay {_fmt(a.delay, 's')} against the {_fmt(1.0 / clock, 's')} clock "
+            "period", warn_margin=warn_margin,
+            fix="shorten the line, lower the clock, or model the link as a transmission "
+                "system (losses, skew between lines) outside pinlib")))
+    if a.line.series_resistor == "auto":
+        res.add(_termination_check(a))
+    for c in a.cases.values():
+        for w in (c.rise, c.fall):
+            if not w.settled:
+                res.notes.append(f"{c.driver.label} {w.edge}: the waveform had not settled "
+                                 "within 1 % at the end of the record")
+
+
+def _add_figures(a: LineAnalysis, res: LineResult) -> None:
+    """The line's figures, in the order of ``_FIGURE_UNITS``."""
+    figs = _figures_of(a.cases)
+    res.figure("load_capacitance", a.trace_c + max(c.c_far for c in a.cases.values()), "F")
+    res.figure("trace_delay", a.delay, "s")
+    res.figure("z0", a.z0, "Ω")
+    res.figure("edge_rise_time", figs["edge_rise_time"], "s")
+    res.figure("edge_fall_time", figs["edge_fall_time"], "s")
+    res.figure("series_resistor", a.rs, "Ω")
+    res.figure("overshoot", figs["overshoot"], "V")
+    res.figure("undershoot", figs["undershoot"], "V")
+    res.figure("transmission_line", bool(a.long), "")
+    used = any(c.distributed for c in a.cases.values())
+    res.figure("model", "distributed" if used else "lumped", "")
+    if not a.long:
+        res.notes.append(("distributed" if used else "lumped") + f" model: {LUMPED_RULE}")
+    res.figure("delay_to_edge_ratio", a.ratio, "")

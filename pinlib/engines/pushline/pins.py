@@ -1,0 +1,147 @@
+"""A pin on a push-pull line (:class:`Endpoint`), the supply of its device, whether a part
+bridges, and a flight time (:class:`Flight`)."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from pinlib.library.schema import Pin
+from pinlib.model.design import Bus, Device
+
+
+@dataclass(frozen=True)
+class Endpoint:
+    """One pin of one device on a line, at that device's supply.
+
+    Attributes
+    ----------
+    device : Device
+        The device on the bus. [1]
+    pin_name : str
+        Name of the pin in its part class. [1]
+    pin : Pin
+        The pin's data. [1]
+    vdd : float
+        The device's supply (its own rail, else the bus supply). [V]
+    """
+
+    device: Device
+    pin_name: str
+    pin: Pin
+    vdd: float
+
+    @property
+    def ref(self) -> str:
+        return self.device.ref
+
+    @property
+    def label(self) -> str:
+        return f"{self.device.ref}.{self.pin_name}"
+
+    @property
+    def c_in(self) -> float:
+        """The pin's capacitance (times the device's drawn factor on a varied board). [F]"""
+        if self.pin.c_in is None:
+            return 0.0
+        return float(self.pin.c_in.at()) * self.device.capacitance_factor
+
+    @property
+    def drives(self) -> bool:
+        return self.pin.drive in ("push-pull", "open-drain")
+
+    def level(self, name: str) -> float | None:
+        """A level of the pin (``v_il``, ``v_ih``, ``abs_max``...) at its supply. [V]"""
+        got = getattr(self.pin, name)
+        return None if got is None else float(got.at(self.vdd))
+
+    def source(self, name: str) -> str:
+        """Where the pin's value ``name`` comes from, for a check's ``source``."""
+        got = getattr(self.pin, name, None)
+        part = self.device.part
+        text = (got.source if got is not None and got.source else None) or \
+            part.provenance.source or part.provenance.basis
+        origin = got.origin if got is not None and got.origin else self.device.part_id
+        return f"{origin} {name}: {text}"
+
+
+@dataclass(frozen=True)
+class Flight:
+    """Earliest and latest flight of an edge (or a set of edges) to one input.
+
+    Attributes
+    ----------
+    early, late : float
+        From the driver's datasheet reference (its pin crossing 50 % of its swing into
+        its ``test_load``) to the input's first / last possible switching point:
+        VIL then VIH on a rise, VIH then VIL on a fall. [s]
+    """
+
+    early: float
+    late: float
+
+
+def _side(device: Device) -> str | None:
+    if device.is_bridge:
+        return device.side or "a"
+    return None
+
+
+def device_supply(device: Device, bus: Bus) -> float:
+    """The supply a device runs from.
+
+    Parameters
+    ----------
+    device : Device
+        A device of the bus. [1]
+    bus : Bus
+        The bus. [1]
+
+    Returns
+    -------
+    float
+        The device's own rail when the design gives one, else the bus supply. [V]
+    """
+    return float(device.supply if device.supply is not None else bus.supply)
+
+
+def endpoint(device: Device, function: str, bus: Bus) -> Endpoint | None:
+    """The pin of a device that serves a function, at the device's supply.
+
+    Parameters
+    ----------
+    device : Device
+        A device of the bus. [1]
+    function : str
+        Pin function, e.g. ``"spi-sclk"``. [1]
+    bus : Bus
+        The bus (for its supply). [1]
+
+    Returns
+    -------
+    Endpoint or None
+        The pin (side ``a`` of a bridging part unless the device names its side), or
+        None when the part has no such pin.
+    """
+    got = device.part.pin_for(function, _side(device))
+    if got is None:
+        return None
+    return Endpoint(device, got[0], got[1], device_supply(device, bus))
+
+
+def is_bridge(device: Device) -> bool:
+    """Whether a device is a bridging part in the path of every signal.
+
+    Parameters
+    ----------
+    device : Device
+        A device of the bus. [1]
+
+    Returns
+    -------
+    bool
+        True for a part with ``[sides]`` or a ``[bridge]`` table, or a buffer,
+        translator or isolator class with a ``t_pd``. [1]
+    """
+    p = device.part
+    return bool(p.sides) or p.bridge is not None or (
+        p.category in ("buffer", "translator", "isolator") and p.timing.t_pd is not None)

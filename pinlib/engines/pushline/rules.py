@@ -1,0 +1,71 @@
+"""The rules of thumb and limits a push-pull line's checks name, and the time grid of the
+waveform solver."""
+
+from __future__ import annotations
+
+from pinlib.core.protocols import protocol
+
+#: A line is electrically long when its one-way delay exceeds this fraction of the
+#: driver's 10-90 % edge.
+LONG_LINE_FRACTION = 1.0 / 6.0
+LONG_LINE_RULE = (
+    "electrically long when the one-way delay exceeds 1/6 of the 10-90 % edge "
+    "(Johnson & Graham, High-Speed Digital Design, 1993; common practice)")
+
+#: A short line is lumped only when ``L / (R^2 C)`` is at most this (see LUMPED_RULE).
+LUMPED_INDUCTANCE_LIMIT = 0.01
+LUMPED_RULE = (
+    "one lumped capacitance only when the line is short and its inductance is negligible: "
+    "L / (R^2 C) <= 0.01, L = sum(Z0 td), R the source resistance, C the whole load "
+    "(derived from the dominant pole of a series RLC, s = -(1 + L/(R^2 C) + ...)/(RC): "
+    "the RC edge is then within about 1 %)")
+
+#: The 10-90 % edge at the far end must stay under this fraction of the clock period.
+EDGE_FRACTION = 0.10
+EDGE_RULE = ("10-90 % edge within 10 % of the clock period (rule of thumb, common "
+             "practice; e.g. Morrison, Digital Circuit Boards: Mach 1 GHz, Wiley 2012, "
+             "§1.14)")
+
+LINE_DELAY_RULE = (
+    "one-way line delay within one clock period: beyond it the line holds more than one "
+    "bit in flight, and a board-level bus model (lossless lines, lines of one bus matched "
+    "in delay) no longer describes it (common practice, no source)")
+
+#: Largest undershoot below ground allowed when a pin's abs_max leaves more room. [V]
+UNDERSHOOT_DEFAULT = 0.5
+UNDERSHOOT_RULE = (
+    "input low limit GND - min(abs_max - VDD, 0.5 V): the part format records the high "
+    "limit only, and CMOS inputs are commonly rated to -0.5 V (common practice, no source)")
+
+TERMINATION_RULE = ("series source termination Rs = Z0 - r_out, nearest E24 value by ratio "
+                    "(common practice; IEC 60063 E24)")
+
+_RINGING_SOURCE = ("an input that re-crosses its threshold after the first crossing may "
+                   "switch twice (common practice, no source)")
+
+#: Pin function of each SPI signal.
+SIGNAL_FUNCTION = dict(protocol("spi").signals)
+
+# Time grid of the waveform solvers.
+_STEPS_PER_DELAY = 50      # steps per shortest section delay (distributed model)
+_STEPS_PER_RAMP = 50       # steps per source ramp
+_STEPS_PER_TAU = 50        # steps per driver time constant
+_MIN_STEPS = 4000          # steps over the whole record, at least
+_MAX_STEPS = 400_000       # and at most, where the shortest section delay allows it
+#: Hard limit on the steps of one waveform record.  The step must divide the shortest
+#: section delay, so a line whose shortest delay is tiny against the record (a long cable
+#: beside a stub of a trace) would need more than ``_MAX_STEPS``; past this many the
+#: engine refuses the line (an InputError naming it) rather than allocate the grid.
+MAX_TIME_STEPS = 1_000_000
+_SETTLE_TAUS = 12.0        # record length: ramp + this many RC time constants ...
+_SETTLE_DELAYS = 60.0      # ... + this many one-way delays of the whole chain
+_SETTLED = 0.01            # the record must end within this fraction of the swing
+_MAX_EXTENSIONS = 4        # times the record is lengthened to settle
+_REF_LEVEL = 0.5           # datasheet timing reference level, fraction of the swing
+# Figures of every line, in their order in the result.
+_FIGURE_UNITS = (("load_capacitance", "F"), ("trace_delay", "s"), ("z0", "Ω"),
+                 ("edge_rise_time", "s"), ("edge_fall_time", "s"), ("series_resistor", "Ω"),
+                 ("overshoot", "V"), ("undershoot", "V"), ("transmission_line", ""),
+                 ("model", ""), ("delay_to_edge_ratio", ""))
+# The checks whose failure makes "auto" fit a series resistor.
+_TERMINATION_CURES = ("overshoot", "undershoot", "ringing")

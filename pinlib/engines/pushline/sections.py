@@ -1,0 +1,153 @@
+"""The sections of a line as electrical stretches (:class:`Stretch`), and the line's model:
+electrically long or short, lumped or distributed."""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+from pinlib.engines.pushline.rules import (
+    LONG_LINE_FRACTION,
+    LUMPED_INDUCTANCE_LIMIT,
+)
+from pinlib.model.design import Section
+from pinlib.physics import lines as tl
+
+
+@dataclass(frozen=True)
+class Stretch:
+    """Electrical data of one section of a line.
+
+    Attributes
+    ----------
+    length : float
+        Length. [m]
+    z0 : float
+        Characteristic impedance; NaN when the section gives no delay. [Ω]
+    td : float
+        One-way delay; 0 when the section gives no delay (a lumped capacitance). [s]
+    c : float
+        Total capacitance of the section. [F]
+    label : str
+        What the section is (geometry name, cable part). [1]
+    """
+
+    length: float
+    z0: float
+    td: float
+    c: float
+    label: str
+
+
+def _geometry_model(g):
+    method = g.method
+    if g.kind == "microstrip":
+        kw = {"method": method} if method else {}
+        return tl.microstrip(g.width, g.height, g.er, g.thickness, **kw)
+    b = g.spacing if g.spacing is not None else 2.0 * g.height + g.thickness
+    kw = {"method": method} if method else {}
+    return tl.stripline(g.width, b, g.er, g.thickness, **kw)
+
+
+def stretches_of(sections: Sequence[Section]) -> list[Stretch]:
+    """The electrical data of each section of a line.
+
+    Parameters
+    ----------
+    sections : sequence of Section
+        The line's sections, from the driver to the far end. [1]
+
+    Returns
+    -------
+    list of Stretch
+        One per section with ``z0`` [Ω], ``td`` [s] and ``c`` [F].
+
+    Notes
+    -----
+    Per-length values follow the lossless-line relations ``Z0 = tpd / C`` and
+    ``td = tpd * length`` (:func:`pinlib.physics.lines.from_per_length`).  A cable class
+    with an impedance but no delay takes ``tpd = Z0 * C``; one with a capacitance only
+    is a lumped capacitance.  Validity warnings of the trace models propagate.
+    """
+    out = []
+    for s in sections:
+        if s.geometry is not None:
+            m = _geometry_model(s.geometry)
+            out.append(Stretch(s.length, float(m.z0), float(m.tpd) * s.length,
+                               float(m.c) * s.length, f"geometry {s.geometry.name}"))
+            continue
+        label = f"cable {s.part_id}" if s.part_id else "per-length values"
+        c = float(s.capacitance)
+        tpd = s.delay
+        if tpd is None and s.impedance is not None:
+            tpd = float(s.impedance) * c
+        if tpd is None:
+            out.append(Stretch(s.length, math.nan, 0.0, c * s.length, label))
+            continue
+        m = tl.from_per_length(c, tpd)
+        z0 = float(s.impedance) if (s.impedance is not None and s.delay is not None
+                                    and s.part_id) else float(m.z0)
+        out.append(Stretch(s.length, z0, float(tpd) * s.length, c * s.length, label))
+    return out
+
+
+def line_model(stretches: Sequence[Stretch], edge_time: float) -> tuple[bool, float]:
+    """Whether a line is electrically long, by :data:`LONG_LINE_RULE`.
+
+    Parameters
+    ----------
+    stretches : sequence of Stretch
+        The line's sections. [1]
+    edge_time : float
+        The driver's 10-90 % edge into the pins alone. [s]
+
+    Returns
+    -------
+    long : bool
+        ``delay > edge_time / 6``. [1]
+    ratio : float
+        One-way delay over edge time. [1]
+    """
+    td = sum(s.td for s in stretches)
+    ratio = td / edge_time if edge_time > 0 else (math.inf if td > 0 else 0.0)
+    return bool(ratio > LONG_LINE_FRACTION), float(ratio)
+
+
+def needs_distributed(stretches: Sequence[Stretch], r_source: float, c_load: float,
+                      long: bool) -> bool:
+    """Whether a line must be solved as a chain of lines rather than one capacitance.
+
+    Parameters
+    ----------
+    stretches : sequence of Stretch
+        The line's sections. [1]
+    r_source : float
+        Smallest source resistance of the driver (output resistance plus series
+        resistor). [Ω]
+    c_load : float
+        Capacitance at the far end (pins and extra capacitance). [F]
+    long : bool
+        Electrically long by :data:`LONG_LINE_RULE`. [1]
+
+    Returns
+    -------
+    bool
+        True when the line is long, or when ``L / (R^2 C) > 0.01`` with
+        ``L = sum(Z0 td)`` and ``C`` the whole capacitance (:data:`LUMPED_RULE`);
+        False for a line without any delay. [1]
+
+    Notes
+    -----
+    A series R-L-C driven through ``R`` has, for ``L << R^2 C``, its dominant pole at
+    ``s = -(1 + L/(R^2 C) + 2 (L/(R^2 C))^2 + ...)/(RC)`` (expanding the roots of
+    ``LC s^2 + RC s + 1``), so an RC model is off by about ``L/(R^2 C)`` in its edge
+    time; the limit 0.01 keeps that near 1 %.
+    """
+    ell = sum(s.z0 * s.td for s in stretches if s.td > 0.0)
+    if ell <= 0.0:
+        return False
+    c_total = sum(s.c for s in stretches) + c_load
+    if long or r_source <= 0.0 or c_total <= 0.0:
+        return True
+    return bool(ell / (r_source * r_source * c_total) > LUMPED_INDUCTANCE_LIMIT)

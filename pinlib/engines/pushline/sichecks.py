@@ -1,0 +1,141 @@
+"""The signal-integrity checks of a line's final drive cases: overshoot, undershoot, ringing,
+levels and edge time."""
+
+from __future__ import annotations
+
+from pinlib.engines.pushline.analysis import LineAnalysis, _fmt
+from pinlib.engines.pushline.pins import Endpoint
+from pinlib.engines.pushline.rules import (
+    _RINGING_SOURCE,
+    EDGE_FRACTION,
+    EDGE_RULE,
+    UNDERSHOOT_DEFAULT,
+    UNDERSHOOT_RULE,
+)
+from pinlib.model.result import Check, check_max, check_min, rule_of_thumb
+from pinlib.physics import waveform as wf
+
+
+def _si_checks(a: LineAnalysis, cases: dict, clock: float | None, clock_line: bool,
+               warn: float) -> list[Check]:
+    """Overshoot, undershoot, ringing, edge time and levels of a line's final cases."""
+    checks: list[Check] = []
+    for p in a.loads:
+        checks += _swing_checks(p, cases, warn)
+    drivers = {d.ref: d for d in a.drivers}
+    for rx in a.receivers:
+        v_il, v_ih = rx.level("v_il"), rx.level("v_ih")
+        if v_il is None or v_ih is None or not v_ih > v_il:
+            continue
+        checks.append(_ringing_check(rx, cases, v_il, v_ih, clock_line))
+        for ref, c in cases.items():
+            if ref != rx.ref:
+                checks += _level_checks(rx, drivers[ref], c, v_il, v_ih, warn)
+    if clock:
+        checks.append(_edge_check(cases, clock, warn))
+    return checks
+
+
+def _swing_checks(p: Endpoint, cases: dict, warn: float) -> list[Check]:
+    """Overshoot and undershoot at one pin against its abs_max (none without one)."""
+    abs_max = p.level("abs_max")
+    if abs_max is None:
+        return []
+    own = [c for ref, c in cases.items() if ref != p.ref]
+    if not own:
+        return []
+    peak = max(c.rise.v_to + c.rise.overshoot for c in own)
+    allowed = abs_max - p.vdd
+    above = peak - p.vdd
+    if abs(above) <= 1e-12 * max(abs(peak), 1.0):
+        above = 0.0  # a settled edge at the supply: the difference is float rounding
+    dip = max(c.fall.undershoot - c.fall.v_to for c in own)
+    low_allowed = min(allowed, UNDERSHOOT_DEFAULT)
+    return [
+        check_max(
+            "overshoot", above, allowed, "V", p.source("abs_max"),
+            f"peak {_fmt(peak, 'V')} at {p.label} against its abs_max {_fmt(abs_max, 'V')} "
+            f"at {_fmt(p.vdd, 'V')}: {_fmt(above, 'V')} above its supply, "
+            f"{_fmt(allowed, 'V')} allowed", warn_margin=warn, subject=p.ref,
+            details={"peak": peak, "abs_max": abs_max, "supply": p.vdd}),
+        check_max(
+            "undershoot", dip, low_allowed, "V", f"{UNDERSHOOT_RULE}; {p.source('abs_max')}",
+            f"dip to {_fmt(-dip, 'V')} at {p.label}; {_fmt(low_allowed, 'V')} below ground "
+            "allowed", warn_margin=warn, subject=p.ref),
+    ]
+
+
+def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
+                   clock_line: bool) -> Check:
+    """Re-crossings of VIL/VIH at one receiver over every other driver's edges."""
+    counts = {}
+    for ref, c in cases.items():
+        if ref == rx.ref:
+            continue
+        for edge in ("rise", "fall"):
+            w = c.wave(edge)
+            got = wf.recrossings(w.t, w.v, v_il, v_ih, edge=edge)
+            prev = counts.get(edge, (0, 0))
+            counts[edge] = (max(prev[0], int(got.entry)), max(prev[1], int(got.opposite)))
+    total = sum(e for e, _ in counts.values())
+    if total == 0:
+        status = "pass"
+    else:
+        status = "fail" if clock_line else "warn"
+    what = "double clocking" if clock_line else "a glitch on a data line"
+    return Check(
+        "ringing", status, total, 0, "", None, _RINGING_SOURCE,
+        (f"no re-crossing of VIL {_fmt(v_il, 'V')} / VIH {_fmt(v_ih, 'V')} at {rx.label}"
+         if total == 0 else
+         f"{total} re-crossing(s) of VIL {_fmt(v_il, 'V')} / VIH {_fmt(v_ih, 'V')} at "
+         f"{rx.label} after the first crossing: risk of {what}"),
+        subject=rx.ref,
+        details={f"{edge}_{kind}": n for edge, (e, o) in counts.items()
+                 for kind, n in (("recrossings", e), ("full_reversals", o))},
+        fix=None if total == 0 else "add or increase a series resistor at the driver")
+
+
+def _driver_levels(d: Endpoint, c) -> tuple[float, str, float, str]:
+    """A driver's VOH, its source, VOL, its source: an open-drain driver's from the
+    pull-up and sink on the net; a push-pull one's from its part, or rail to rail."""
+    if d.pin.drive == "open-drain":
+        src = f"{d.label}: pull-up and sink on the net"
+        return c.v_high, src, c.v_low, src
+    v_oh = d.level("v_oh")
+    v_ol = d.level("v_ol")
+    oh_src = d.source("v_oh") if v_oh is not None else ""
+    ol_src = d.source("v_ol") if v_ol is not None else ""
+    if v_oh is None:
+        v_oh, oh_src = d.vdd, f"{d.label}: rail-to-rail CMOS output assumed"
+    if v_ol is None:
+        v_ol, ol_src = 0.0, f"{d.label}: rail-to-rail CMOS output assumed"
+    return v_oh, oh_src, v_ol, ol_src
+
+
+def _level_checks(rx: Endpoint, d: Endpoint, c, v_il: float, v_ih: float,
+                  warn: float) -> list[Check]:
+    """A driver's VOH/VOL against one receiver's VIH/VIL."""
+    v_oh, oh_src, v_ol, ol_src = _driver_levels(d, c)
+    return [
+        check_min(
+            "level-high", v_oh, v_ih, "V", rx.source("v_ih"),
+            f"{d.label} VOH {_fmt(v_oh, 'V')} against {rx.label} VIH {_fmt(v_ih, 'V')}",
+            warn_margin=warn, subject=rx.ref, details={"driver": d.label,
+                                                       "driver_source": oh_src}),
+        check_max(
+            "level-low", v_ol, v_il, "V", rx.source("v_il"),
+            f"{d.label} VOL {_fmt(v_ol, 'V')} against {rx.label} VIL {_fmt(v_il, 'V')}",
+            warn_margin=warn, subject=rx.ref, details={"driver": d.label,
+                                                       "driver_source": ol_src}),
+    ]
+
+
+def _edge_check(cases: dict, clock: float, warn: float) -> Check:
+    """The slowest 10-90 % edge against a fraction of the clock period (a rule of thumb)."""
+    edge = max(max(c.rise.t_edge, c.fall.t_edge) for c in cases.values())
+    limit = EDGE_FRACTION / clock
+    return rule_of_thumb(check_max(
+        "edge-time", edge, limit, "s", EDGE_RULE,
+        f"slowest 10-90 % edge {_fmt(edge, 's')} at the far end against "
+        f"{EDGE_FRACTION:.0%} of the {_fmt(1.0 / clock, 's')} period",
+        warn_margin=warn, details={"fraction": EDGE_FRACTION}))

@@ -1,0 +1,116 @@
+"""The series resistor of a line: the design's, or chosen by ``"auto"`` (``Z0 - r_out`` to the
+nearest E24 value), and the check reporting the choice."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from pinlib.core import eseries
+from pinlib.engines.pushline.analysis import LineAnalysis, _cases, _figures_of, _fmt
+from pinlib.engines.pushline.rules import _TERMINATION_CURES, TERMINATION_RULE
+from pinlib.engines.pushline.sichecks import _si_checks
+from pinlib.model.result import Check
+
+
+def auto_series_resistor(z0, r_out):
+    """The series resistor that "auto" picks for a line: ``Z0 - r_out``, nearest E24.
+
+    Parameters
+    ----------
+    z0 : float or array_like
+        Characteristic impedance of the line's first section. [Ω]
+    r_out : float or array_like
+        Output resistance of the driver. [Ω]
+
+    Returns
+    -------
+    numpy.ndarray or float
+        The E24 value nearest (by ratio) to ``z0 - r_out``, or 0 where the driver
+        alone already matches or exceeds ``z0`` (or ``z0`` is not known). [Ω]
+
+    Notes
+    -----
+    Series (source) termination: the wave launched into the line is then half the
+    swing and the far-end reflection is absorbed at the source (REFERENCES.md, Board
+    traces: Rs = Z0 - Rout).
+
+    Examples
+    --------
+    >>> float(auto_series_resistor(50.0, 20.0))
+    30.0
+    """
+    z0 = np.asarray(z0, dtype=float)
+    r_out = np.asarray(r_out, dtype=float)
+    ideal = z0 - r_out
+    ok = np.isfinite(ideal) & (ideal > 0.0)
+    out = np.where(ok, eseries.nearest("E24", np.where(ok, ideal, 1.0)), 0.0)
+    return out[()] if out.ndim == 0 else out
+
+
+def _solve_cases(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
+                 notes: list) -> None:
+    """The series resistor of the line (the design's, or chosen by "auto") and the final
+    cases with it."""
+    setting = a.line.series_resistor
+    if setting == "auto":
+        _auto_series(a, pullup, clock, clock_line, warn_margin, notes)
+    elif setting == "none" or setting is None:
+        a.rs = 0.0
+        a.cases = _cases(a, 0.0, pullup)
+    else:
+        a.rs = float(setting)
+        a.cases = _cases(a, a.rs, pullup)
+
+
+def _auto_series(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
+                 notes: list) -> None:
+    """``series_resistor = "auto"``: none on a short line that passes what a series
+    resistor cures, else ``Z0 - r_out`` to the nearest E24 value."""
+    bare = _cases(a, 0.0, pullup)
+    bare_checks = _si_checks(a, bare, clock, clock_line, warn_margin)
+    # Only what a series resistor can cure decides (a slow edge or a level it cannot),
+    # so the choice does not depend on the clock.
+    clean = all(c.status != "fail" for c in bare_checks if c.id in _TERMINATION_CURES)
+    r_drv = min(0.5 * (a.models[d.ref].r_rise + a.models[d.ref].r_fall)
+                for d in a.drivers if d.pin.drive != "open-drain") \
+        if any(d.pin.drive != "open-drain" for d in a.drivers) else math.nan
+    a.rs_ideal = a.z0 - r_drv if math.isfinite(a.z0) and math.isfinite(r_drv) else None
+    if (not a.long and clean) or a.rs_ideal is None:
+        a.rs, a.cases = 0.0, bare
+        why = ("electrically short, and no overshoot, undershoot or ringing check "
+               "fails without one"
+               if (not a.long and clean) else "no line impedance or push-pull driver")
+        notes.append(f"auto series resistor: none ({why})")
+        return
+    a.rs = float(auto_series_resistor(a.z0, r_drv))
+    if a.rs > 0:
+        a.unterminated = bare
+        a.cases = _cases(a, a.rs, pullup)
+        notes.append(f"auto series resistor: {_fmt(a.rs, 'Ω')} (Z0 {_fmt(a.z0, 'Ω')} "
+                     f"- r_out {_fmt(r_drv, 'Ω')} = {_fmt(a.rs_ideal, 'Ω')}, "
+                     "nearest E24)")
+    else:
+        a.cases = bare
+        notes.append(f"auto series resistor: none (the driver's {_fmt(r_drv, 'Ω')} "
+                     f"already matches or exceeds Z0 {_fmt(a.z0, 'Ω')})")
+
+
+def _termination_check(a: LineAnalysis) -> Check:
+    """What "auto" chose, with the figures with and without the resistor."""
+    with_f = _figures_of(a.cases)
+    details = {"rs_chosen": a.rs, "rs_ideal": a.rs_ideal, "z0": a.z0,
+               "delay_to_edge_ratio": a.ratio, "with": with_f}
+    if a.unterminated is not None:
+        details["without"] = _figures_of(a.unterminated)
+    else:
+        details["without"] = with_f
+    wo = details["without"]
+    return Check(
+        "series-termination", "pass", a.rs, a.rs_ideal, "Ω", None, TERMINATION_RULE,
+        (f"auto: {_fmt(a.rs, 'Ω')}; overshoot {_fmt(wo['overshoot'], 'V')} -> "
+         f"{_fmt(with_f['overshoot'], 'V')}, rise {_fmt(wo['edge_rise_time'], 's')} -> "
+         f"{_fmt(with_f['edge_rise_time'], 's')}" if a.unterminated is not None else
+         "auto: no series resistor needed"),
+        details=details)

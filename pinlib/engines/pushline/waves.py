@@ -1,0 +1,172 @@
+"""One edge at the far end of a line (:class:`EdgeWave`), solved on a bounded time grid."""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import numpy as np
+
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
+from pinlib.core.quantity import format_si
+from pinlib.engines import memo
+from pinlib.engines.pushline.rules import (
+    _MAX_EXTENSIONS,
+    _MAX_STEPS,
+    _MIN_STEPS,
+    _SETTLE_DELAYS,
+    _SETTLE_TAUS,
+    _SETTLED,
+    _STEPS_PER_DELAY,
+    _STEPS_PER_RAMP,
+    _STEPS_PER_TAU,
+    MAX_TIME_STEPS,
+)
+from pinlib.engines.pushline.sections import Stretch
+from pinlib.physics import waveform as wf
+
+
+@dataclass(frozen=True)
+class EdgeWave:
+    """One edge at the far end of a line.
+
+    Attributes
+    ----------
+    edge : str
+        ``"rise"`` or ``"fall"``. [1]
+    t, v : numpy.ndarray
+        Sample times from the start of the source ramp, and far-end voltage. [s], [V]
+    v_from, v_to : float
+        Levels before and after the edge. [V]
+    t_edge : float
+        10-90 % edge time at the far end. [s]
+    overshoot : float
+        Peak above the high level (rise) or 0 (fall). [V]
+    undershoot : float
+        Dip below the low level (fall) or 0 (rise). [V]
+    settled : bool
+        Whether the record ends within 1 % of the swing of ``v_to``. [1]
+    """
+
+    edge: str
+    t: np.ndarray
+    v: np.ndarray
+    v_from: float
+    v_to: float
+    t_edge: float
+    overshoot: float
+    undershoot: float
+    settled: bool
+
+    def crossing(self, level: float) -> float:
+        """First time the edge reaches ``level`` in its direction; NaN if never. [s]"""
+        return float(wf.threshold_delay(self.t, self.v, level, edge=self.edge))
+
+
+class _TooManySteps(InputError):
+    """A record longer than :data:`MAX_TIME_STEPS`; :func:`analyse_line` names the line."""
+
+
+def _grid(t_end: float, dt: float) -> np.ndarray:
+    steps = t_end / dt
+    if not steps <= MAX_TIME_STEPS:  # also NaN: checked before anything is allocated
+        raise _TooManySteps(
+            M.TOO_MANY_TIME_STEPS.format(steps=f"{steps:.3g}", limit=f"{MAX_TIME_STEPS:,}"),
+            value=f"{format_si(t_end, 's')} in steps of {format_si(dt, 's')}",
+            hint="the step divides the shortest section delay: merge a very short section "
+                 "into its neighbour (or drop it), or shorten the longest section")
+    n = int(math.ceil(steps))
+    return np.arange(n + 1) * dt
+
+
+def simulate_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float,
+                  c_far: float, v_from: float, v_to: float, *, distributed: bool,
+                  edge: str) -> EdgeWave:
+    """One edge of a ramp source behind a resistance, at the far end of a line.
+
+    Parameters
+    ----------
+    stretches : sequence of Stretch
+        The line's sections. [1]
+    r_source : float
+        Driver resistance plus series resistor. [Ω]
+    t_ramp : float
+        Source ramp, 0-100 %. [s]
+    c_far : float
+        Capacitance at the far end: pins and extra capacitance. [F]
+    v_from : float
+        Level before the edge. [V]
+    v_to : float
+        Level after the edge. [V]
+    distributed : bool
+        Solve the chain of lines (True) or one lumped capacitance (False). [1]
+    edge : str
+        ``"rise"`` when ``v_to > v_from``, else ``"fall"``. [1]
+
+    Returns
+    -------
+    EdgeWave
+        The far-end waveform and its figures.
+
+    Notes
+    -----
+    The circuit is linear and starts in its DC state, so the edge is
+    ``v_from + (v_to - v_from) u(t)`` with ``u`` the unit response of the same circuit.
+    The record runs for the ramp, 12 time constants of ``r_source`` into the whole
+    capacitance and (distributed) 60 one-way delays, lengthened until it ends within
+    1 % of the swing.  The step is at most 1/50 of the shortest section delay, of the
+    ramp and of the time constant, and divides the shortest delay exactly.  A record
+    that would need more than :data:`MAX_TIME_STEPS` steps is refused with an
+    InputError.
+    """
+    key = ("pushline.unit_edge", tuple((s.z0, s.td, s.c) for s in stretches),
+           r_source, t_ramp, c_far, bool(distributed))
+    t, unit, settled = memo.remember(
+        key, lambda: _unit_edge(stretches, r_source, t_ramp, c_far, distributed))
+    swing = v_to - v_from
+    v = v_from + swing * unit
+    t_edge = float(wf.edge_time(t, v, v_to, v_initial=v_from))
+    hi, lo = max(v_from, v_to), min(v_from, v_to)
+    over = float(wf.overshoot(v, hi))
+    under = float(wf.undershoot(v, lo))
+    return EdgeWave(edge, t.copy(), v, v_from, v_to, t_edge, over, under, bool(settled))
+
+
+def _unit_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float, c_far: float,
+               distributed: bool) -> tuple[np.ndarray, np.ndarray, bool]:
+    """The time grid, the unit response (0 -> 1) at the far end and whether it settled,
+    for :func:`simulate_edge` (which the level of the edge only scales and shifts)."""
+    c_line = sum(s.c for s in stretches)
+    c_total = c_line + c_far
+    tau = r_source * c_total
+    sections = [(s.z0, s.td) for s in stretches if s.td > 0.0]
+    c_lumped_far = c_far + sum(s.c for s in stretches if s.td <= 0.0)
+    delays = [td for _, td in sections]
+    distributed = distributed and bool(sections)
+    t_end = t_ramp + _SETTLE_TAUS * tau + (_SETTLE_DELAYS * sum(delays) if distributed else 0.0)
+    t_end = max(t_end, 1e-12)
+    for _ in range(_MAX_EXTENSIONS + 1):
+        limits = [t_end / _MIN_STEPS]
+        if t_ramp > 0:
+            limits.append(t_ramp / _STEPS_PER_RAMP)
+        if tau > 0:
+            limits.append(tau / _STEPS_PER_TAU)
+        if distributed:
+            limits.append(min(delays) / _STEPS_PER_DELAY)
+        dt = max(min(limits), t_end / _MAX_STEPS)
+        if distributed:
+            d_min = min(delays)
+            dt = d_min / math.ceil(d_min / dt)
+        t = _grid(t_end, dt)
+        if distributed:
+            unit = wf.distributed_response(t, 1.0, t_ramp, r_source, sections,
+                                           c_lumped_far).v
+        else:
+            unit = wf.lumped_response(t, 1.0, t_ramp, r_source, c_total).v
+        settled = abs(unit[-1] - 1.0) <= _SETTLED
+        if settled:
+            break
+        t_end *= 3.0
+    return t, unit, bool(settled)

@@ -1,0 +1,241 @@
+"""An SPI bus's routed lines through the line engine and the flights taken from their waveforms
+(:func:`spi_analysis`)."""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from pinlib.core import messages as M
+from pinlib.core.errors import DesignError
+from pinlib.engines.pushline import (
+    EDGE_FRACTION,
+    SIGNAL_FUNCTION,
+    analyse_line,
+    endpoint,
+    is_bridge,
+)
+from pinlib.engines.spi.budget import ControllerTiming, PeripheralTiming, budget_terms
+from pinlib.engines.spi.margins import max_clock
+from pinlib.engines.spi.modes import (
+    _CONTROLLER_DRIVES,
+    _SPI_ORDER,
+    CS_LEAD_SOURCE,
+    SpiMode,
+    spi_mode,
+)
+from pinlib.model.design import Bus, Design, Device
+
+
+@dataclass
+class SpiAnalysis:
+    """The lines and timing of one SPI bus.
+
+    Attributes
+    ----------
+    bus : Bus
+        The bus. [1]
+    mode : SpiMode
+        Its clock mode. [1]
+    lines : dict
+        :class:`LineAnalysis` by signal, routed signals only. [1]
+    controller : ControllerTiming
+        The controller's timing. [s]
+    peripherals : list of PeripheralTiming
+        Flights and timing of each peripheral. [s]
+    t_bridge : float
+        One crossing of every bridging part in the path. [s]
+    terms : list of Term
+        Every timing requirement as a function of the period. [s]
+    f_limits : list of (str, float, str)
+        Clock limits of the parts: (ref, f_max, source). [Hz]
+    edge_terms : list of (str, float)
+        Slowest far-end edge of each line, for the edge-time rule. [s]
+    notes : list of str
+        What was assumed or skipped. [1]
+    """
+
+    bus: Bus
+    mode: SpiMode
+    lines: dict
+    controller: ControllerTiming
+    peripherals: list
+    t_bridge: float
+    terms: list
+    f_limits: list
+    edge_terms: list
+    notes: list
+
+    def max_clock(self) -> float:
+        """Highest clock at which every timing margin and every part's ``f_max`` hold:
+        the limits of the parts' data (the edge rule of thumb is
+        :meth:`edge_rule_clock`, beside it). [Hz]"""
+        return self.clock_limits()[0][0]
+
+    def clock_limits(self) -> list[tuple[float, str, str]]:
+        """Each timing requirement's and each part's own highest clock, lowest first:
+        ``(clock, name, source)``, the name as ``"cipo-setup U2"`` or ``"f_max U1"`` and
+        the source of its limit; an unlimited bus gives ``[(inf, "nothing", "")]``. The
+        first sets :meth:`max_clock`. [Hz]"""
+        out = [(float(max_clock([t.a], [_finite_or_inf(t.required - t.b)])),
+                f"{t.id} {t.subject}", t.source or "not recorded by the part: taken as 0")
+               for t in self.terms]
+        out += [(float(f), f"f_max {ref}", source) for ref, f, source in self.f_limits]
+        out.sort(key=lambda x: x[0])
+        return out or [(math.inf, "nothing", "")]
+
+    def edge_rule_clock(self) -> tuple[float, str]:
+        """Highest clock at which every line's far-end edge keeps within
+        :data:`~pinlib.engines.pushline.EDGE_FRACTION` of the period (a rule of thumb),
+        and the line that sets it. [Hz]"""
+        got = [(float(max_clock([EDGE_FRACTION], [_finite_or_inf(e)])), sig)
+               for sig, e in self.edge_terms]
+        return min(got, default=(math.inf, "nothing"))
+
+
+def _finite_or_inf(x: float) -> float:
+    return x if math.isfinite(x) else math.inf
+
+
+def _sourced_text(device: Device, name: str) -> str:
+    """Where a timing value of a device's part comes from, for a check's ``source``: the
+    part whose file set it (for a value inherited through ``extends``, the class it came
+    from, not the part placed) and that value's own source or basis.  The placed part's
+    provenance stands in only for a value the part states itself without a source, or
+    for a value it lacks."""
+    got = getattr(device.part.timing, name)
+    part = device.part
+    own_text = part.provenance.source or part.provenance.basis
+    if got is None:
+        return f"{device.part_id} {name}: {own_text}"
+    origin = got.origin or device.part_id
+    if origin == device.part_id:
+        text = got.source or own_text
+    else:
+        text = got.source or got.basis or got.provenance_text()
+    return f"{origin} {name}: {text}"
+
+
+def _timing_value(device: Device, name: str) -> float | None:
+    got = getattr(device.part.timing, name)
+    return None if got is None else float(got.at())
+
+
+def _spi_lines(bus: Bus, design: Design) -> tuple[dict, Device, list, list, list]:
+    controllers = bus.controllers
+    controller = controllers[0]
+    notes = []
+    if len(controllers) > 1:
+        notes.append(f"more than one controller: {controller.ref} is taken as the one driving")
+    peripherals = [d for d in bus.peripherals if not is_bridge(d)]
+    bridges = [d for d in bus.peripherals if is_bridge(d)]
+    warn = design.warn_margin
+    out = {}
+    for sig in _SPI_ORDER:
+        if sig not in bus.lines:
+            continue
+        fn = SIGNAL_FUNCTION[sig]
+        line = bus.lines[sig]
+        if sig in _CONTROLLER_DRIVES:
+            d = endpoint(controller, fn, bus)
+            if d is None or d.pin.drive != "push-pull":
+                raise DesignError(M.CONTROLLER_LACKS_PUSH_PULL_PIN.format(function=fn),
+                                  field=f"lines.{sig}", value=controller.part_id)
+            drivers = [d]
+            others = [e for e in (endpoint(p, fn, bus) for p in peripherals + bridges) if e]
+            loads = [d] + others
+            receivers = [e for e in others if e.pin.drive == "input"]
+        else:
+            drivers = [e for e in (endpoint(p, fn, bus) for p in peripherals)
+                       if e is not None and e.pin.drive == "push-pull"]
+            rx = endpoint(controller, fn, bus)
+            others = [e for e in (endpoint(p, fn, bus) for p in peripherals + bridges) if e]
+            loads = ([rx] if rx else []) + others
+            receivers = [rx] if rx is not None else []
+            if not drivers:
+                notes.append("cipo is routed but no peripheral drives it; line not evaluated")
+                continue
+        out[sig] = analyse_line(sig, line, drivers, loads, receivers, clock=bus.clock,
+                                clock_line=(sig == "sclk"), warn_margin=warn, bus_id=bus.id)
+    return out, controller, peripherals, bridges, notes
+
+
+def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
+    """Lines and timing terms of an SPI bus (what :func:`evaluate_bus` reports).
+
+    Parameters
+    ----------
+    bus : Bus
+        An ``spi`` bus of ``design``. [1]
+    design : Design
+        The loaded design. [1]
+
+    Returns
+    -------
+    SpiAnalysis
+    """
+    mode = spi_mode(bus.spi_mode)
+    lines, controller, peripherals, bridges, notes = _spi_lines(bus, design)
+    ct = controller.part.timing
+    c_sources = {n: _sourced_text(controller, n) for n in ("t_valid", "t_setup", "t_hold",
+                                                           "t_cs_setup", "f_max")}
+    ctl = ControllerTiming(controller.ref, _timing_value(controller, "t_valid"),
+                               _timing_value(controller, "t_setup"),
+                               _timing_value(controller, "t_hold"),
+                               _timing_value(controller, "t_cs_setup"),
+                               None if ct.f_max is None else float(ct.f_max.at()), c_sources)
+    for name in ("t_valid", "t_setup", "t_hold"):
+        if getattr(ct, name) is None:
+            notes.append(f"{controller.ref} ({controller.part_id}) records no {name}: taken as 0")
+    if ct.t_cs_setup is None:
+        notes.append(f"CS lead: {CS_LEAD_SOURCE}")
+    t_bridge = 0.0
+    for b in bridges:
+        if b.part.timing.t_pd is not None:
+            t_bridge += float(b.part.timing.t_pd.at())
+            notes.append(f"{b.ref} ({b.part_id}) t_pd {b.part.timing.t_pd.text} in every path "
+                         "(twice on the CIPO round trip)")
+    sclk = lines.get("sclk")
+    periph_t = []
+    ctl_sclk = None if sclk is None else sclk.cases[controller.ref]
+    ctl_cipo = endpoint(controller, SIGNAL_FUNCTION["cipo"], bus)
+    for p in peripherals:
+        if ctl_sclk is None:
+            continue
+        ep = endpoint(p, SIGNAL_FUNCTION["sclk"], bus)
+        if ep is None:
+            continue
+        sclk_f = {e: ctl_sclk.flight(ep, e) for e in ("rise", "fall")}
+        copi = cs = cipo = None
+        if "copi" in lines and (e := endpoint(p, SIGNAL_FUNCTION["copi"], bus)) is not None:
+            copi = lines["copi"].cases[controller.ref].flight_both(e)
+        if "cs" in lines and (e := endpoint(p, SIGNAL_FUNCTION["cs"], bus)) is not None:
+            cs = lines["cs"].cases[controller.ref].flight(e, "fall")
+        if "cipo" in lines and p.ref in lines["cipo"].cases and ctl_cipo is not None:
+            cipo = lines["cipo"].cases[p.ref].flight_both(ctl_cipo)
+        tv = _timing_value(p, "t_valid")
+        if cipo is not None and tv is None:
+            notes.append(f"{p.ref} ({p.part_id}) records no t_valid: CIPO setup not checked")
+        for name in ("t_setup", "t_hold", "t_cs_setup"):
+            if getattr(p.part.timing, name) is None:
+                notes.append(f"{p.ref} ({p.part_id}) records no {name}: taken as 0")
+        periph_t.append(PeripheralTiming(
+            p.ref, sclk_f, copi, cs, cipo, tv, _timing_value(p, "t_setup"),
+            _timing_value(p, "t_hold"), _timing_value(p, "t_cs_setup"),
+            _timing_value(p, "f_max"),
+            {n: _sourced_text(p, n) for n in ("t_valid", "t_setup", "t_hold", "t_cs_setup",
+                                              "f_max")}))
+    terms = budget_terms(mode, ctl, periph_t, t_bridge)
+    f_limits = []
+    for d in [controller] + peripherals + bridges:
+        f = _timing_value(d, "f_max")
+        if f is not None:
+            f_limits.append((d.ref, f, _sourced_text(d, "f_max")))
+    edge_terms = []
+    if bus.clock:
+        for sig, la in lines.items():
+            chk = la.result.check("edge-time")
+            if chk is not None:
+                edge_terms.append((sig, float(chk.value)))
+    return SpiAnalysis(bus, mode, lines, ctl, periph_t, t_bridge, terms, f_limits,
+                       edge_terms, notes)

@@ -1,0 +1,191 @@
+"""The timing values of an SPI bus's parts and the terms of each timing budget
+(:func:`budget_terms`)."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from pinlib.engines.pushline import (
+    Flight,
+)
+from pinlib.engines.spi.modes import SpiMode
+
+
+@dataclass(frozen=True)
+class PeripheralTiming:
+    """What the budget needs of one peripheral.
+
+    Attributes
+    ----------
+    ref : str
+        Reference designator. [1]
+    sclk : dict
+        Flight of each SCLK edge direction (``"rise"``, ``"fall"``) to the
+        peripheral. [s]
+    copi, cs, cipo : Flight or None
+        COPI and CS flights to the peripheral over both edges (CS: its asserting edge),
+        CIPO flight from it back to the controller; None when the signal is not
+        routed or the part has no such pin. [s]
+    t_valid, t_setup, t_hold, t_cs_setup : float or None
+        The peripheral's timing values. [s]
+    f_max : float or None
+        The peripheral's clock limit. [Hz]
+    sources : dict
+        Source text of each timing value, by name. [1]
+    """
+
+    ref: str
+    sclk: dict
+    copi: Flight | None = None
+    cs: Flight | None = None
+    cipo: Flight | None = None
+    t_valid: float | None = None
+    t_setup: float | None = None
+    t_hold: float | None = None
+    t_cs_setup: float | None = None
+    f_max: float | None = None
+    sources: dict = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class ControllerTiming:
+    """What the budget needs of the controller.
+
+    Attributes
+    ----------
+    ref : str
+        Reference designator. [1]
+    t_valid : float or None
+        Launch edge to COPI valid at its pin into its test load (max). [s]
+    t_setup, t_hold : float or None
+        CIPO setup and hold at its input (min). [s]
+    t_cs_lead : float or None
+        CS asserted to the first SCLK edge that it guarantees; None: half a period. [s]
+    f_max : float or None
+        Its SPI clock limit. [Hz]
+    sources : dict
+        Source text of each timing value, by name. [1]
+    """
+
+    ref: str
+    t_valid: float | None = None
+    t_setup: float | None = None
+    t_hold: float | None = None
+    t_cs_lead: float | None = None
+    f_max: float | None = None
+    sources: dict = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class Term:
+    """One timing requirement as ``available(T) = a T + b >= required``.
+
+    Attributes
+    ----------
+    id : str
+        Check id (``"copi-setup"``, ``"cipo-setup"``...). [1]
+    subject : str
+        The peripheral it concerns. [1]
+    a : float
+        Coefficient of the period in the available time (1/2 or 0). [1]
+    b : float
+        Period-independent part of the available time. [s]
+    required : float
+        The part's requirement (setup, hold), 0 when not recorded. [s]
+    source : str
+        Where the requirement comes from. [1]
+    parts : dict
+        The terms that make up ``b`` and ``required``, for the check details. [s]
+    """
+
+    id: str
+    subject: str
+    a: float
+    b: float
+    required: float
+    source: str
+    parts: dict
+
+    def available(self, period):
+        """Available time at a clock period. [s]"""
+        return self.a * np.asarray(period, dtype=float) + self.b
+
+    def margin(self, period):
+        """Available minus required time at a clock period. [s]"""
+        return self.available(period) - self.required
+
+
+def _or0(x):
+    return 0.0 if x is None else float(x)
+
+
+def budget_terms(mode: SpiMode, controller: ControllerTiming,
+                 peripherals: list[PeripheralTiming], t_bridge: float = 0.0) -> list[Term]:
+    """Every timing requirement of an SPI bus as a linear function of the period.
+
+    Parameters
+    ----------
+    mode : SpiMode
+        The bus's clock mode. [1]
+    controller : ControllerTiming
+        The controller's timing. [s]
+    peripherals : list of PeripheralTiming
+        Each peripheral's flights and timing. [s]
+    t_bridge : float, optional
+        One crossing of every bridging part in the path, summed (``sum t_pd``). [s]
+
+    Returns
+    -------
+    list of Term
+        COPI setup and hold, CIPO setup and hold and CS setup for each peripheral that
+        has the signals; a term whose inputs are missing (no CIPO route, no
+        ``t_valid``) is left out, and the caller says so.
+    """
+    terms: list[Term] = []
+    c_src = controller.sources
+    for p in peripherals:
+        s_sample = p.sclk[mode.sample_edge]
+        s_launch = p.sclk[mode.launch_edge]
+        s_first = p.sclk[mode.first_edge]
+        src = p.sources
+        if p.copi is not None:
+            tv = _or0(controller.t_valid)
+            terms.append(Term(
+                "copi-setup", p.ref, 0.5, s_sample.early - tv - p.copi.late,
+                _or0(p.t_setup), src.get("t_setup", ""),
+                {"half_period": "T/2", "sclk_early": s_sample.early, "t_valid_controller": tv,
+                 "copi_late": p.copi.late, "t_setup": _or0(p.t_setup)}))
+            terms.append(Term(
+                "copi-hold", p.ref, 0.5, p.copi.early - s_sample.late,
+                _or0(p.t_hold), src.get("t_hold", ""),
+                {"half_period": "T/2", "copi_early": p.copi.early, "sclk_late": s_sample.late,
+                 "t_hold": _or0(p.t_hold)}))
+        if p.cipo is not None and p.t_valid is not None:
+            t_path = 2.0 * t_bridge
+            terms.append(Term(
+                "cipo-setup", p.ref, 0.5, -(s_launch.late + p.t_valid + p.cipo.late + t_path),
+                _or0(controller.t_setup), c_src.get("t_setup", ""),
+                {"half_period": "T/2", "sclk_late": s_launch.late, "t_valid": p.t_valid,
+                 "cipo_late": p.cipo.late, "bridges_round_trip": t_path,
+                 "t_setup_controller": _or0(controller.t_setup)}))
+        if p.cipo is not None:
+            terms.append(Term(
+                "cipo-hold", p.ref, 0.5, s_launch.early + p.cipo.early,
+                _or0(controller.t_hold), c_src.get("t_hold", ""),
+                {"half_period": "T/2", "sclk_early": s_launch.early,
+                 "cipo_early": p.cipo.early, "t_hold_controller": _or0(controller.t_hold)}))
+        if p.cs is not None:
+            if controller.t_cs_lead is None:
+                a, lead = 0.5, 0.0
+                lead_text = "T/2"
+            else:
+                a, lead = 0.0, float(controller.t_cs_lead)
+                lead_text = lead
+            terms.append(Term(
+                "cs-setup", p.ref, a, lead + s_first.early - p.cs.late,
+                _or0(p.t_cs_setup), src.get("t_cs_setup", ""),
+                {"lead": lead_text, "sclk_early": s_first.early, "cs_late": p.cs.late,
+                 "t_cs_setup": _or0(p.t_cs_setup)}))
+    return terms

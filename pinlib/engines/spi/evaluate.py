@@ -1,0 +1,122 @@
+"""One SPI bus evaluated: its timing checks and figures (:func:`evaluate_spi`)."""
+
+from __future__ import annotations
+
+import math
+
+from pinlib.engines.pushline import (
+    EDGE_FRACTION,
+)
+from pinlib.engines.spi.analysis import SpiAnalysis, spi_analysis
+from pinlib.engines.spi.budget import Term
+from pinlib.engines.spi.modes import TIMING_REFERENCE, _fmt
+from pinlib.model.design import Bus, Design
+from pinlib.model.result import BusResult, Check, check_max, check_min
+
+_TERM_TEXT = {
+    "copi-setup": ("COPI setup at {ref}", "available setup {avail} against t_setup {req}"),
+    "copi-hold": ("COPI hold at {ref}", "available hold {avail} against t_hold {req}"),
+    "cipo-setup": ("CIPO setup at the controller from {ref}",
+                   "round trip leaves {avail} against the controller's t_setup {req}"),
+    "cipo-hold": ("CIPO hold at the controller from {ref}",
+                  "available hold {avail} against the controller's t_hold {req}"),
+    "cs-setup": ("CS setup at {ref}", "CS leads the first edge by {avail} against "
+                                      "t_cs_setup {req}"),
+}
+
+
+def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = None) -> BusResult:
+    """Evaluate an SPI bus: its lines and its timing budget at the design's clock.
+
+    Parameters
+    ----------
+    bus : Bus
+        An ``spi`` bus of ``design``. [1]
+    design : Design
+        The loaded design. [1]
+    analysis : SpiAnalysis, optional
+        ``spi_analysis(bus, design)`` when the caller already has it (a widget that
+        also draws the budget), so that the lines are not solved twice. [1]
+
+    Returns
+    -------
+    BusResult
+        One line result per routed signal; checks ``copi-setup``, ``copi-hold``,
+        ``cipo-setup``, ``cipo-hold``, ``cs-setup`` (per peripheral) and ``f-max``
+        (per part); figures ``max_clock`` [Hz], ``cipo_setup_margin``,
+        ``copi_setup_margin`` and ``copi_hold_margin`` (the worst over peripherals,
+        available minus required time; None when not computed) [s].
+    """
+    sa = spi_analysis(bus, design) if analysis is None else analysis
+    res = BusResult(id=bus.id, protocol=bus.protocol, workings=sa)
+    res.notes.extend(sa.notes)
+    res.notes.append(f"SPI mode {sa.mode.mode} (CPOL {sa.mode.cpol}, CPHA {sa.mode.cpha}): "
+                     f"idle {sa.mode.idle}, data launched on the {sa.mode.launch_edge} and "
+                     f"sampled on the {sa.mode.sample_edge} of SCLK")
+    res.notes.append(f"timing reference: {TIMING_REFERENCE}")
+    warn = design.warn_margin
+    clock = float(bus.clock)
+    worst: dict[str, float | None] = {}
+    why: dict[str, str] = {}
+    for t in sa.terms:
+        chk = res.add(_term_check(t, clock, warn, sa.mode.mode))
+        if chk.reason is not None:
+            worst[t.id] = None   # no time exists; the check fails and says why
+            why.setdefault(t.id, chk.reason)
+        elif t.id not in worst or worst[t.id] is not None:
+            m = float(chk.value) - t.required
+            worst[t.id] = min(worst.get(t.id, math.inf), m)
+    for ref, f, source in sa.f_limits:
+        res.add(check_max("f-max", clock, f, "Hz", source,
+                          f"clock {_fmt(clock, 'Hz')} against {ref}'s f_max {_fmt(f, 'Hz')}",
+                          warn_margin=0.0, subject=ref))  # a rating: at it is inside
+    for la in sa.lines.values():
+        res.lines.append(la.result)
+    (f_top, by, _), (f_edge, edge_sig) = sa.clock_limits()[0], sa.edge_rule_clock()
+    res.figure("max_clock", f_top if f_top > 0 else None, "Hz")
+    res.figure("max_clock_limited_by", by, "")
+    res.figure("max_clock_edge_rule", f_edge, "Hz")
+    if f_top <= 0:
+        res.notes.append(f"max_clock: none, no clock satisfies {by}")
+    elif math.isfinite(f_top):
+        res.notes.append(f"max_clock {_fmt(f_top, 'Hz')}: the highest clock the timing "
+                         f"budget and the parts' f_max allow, set by {by}")
+    if math.isfinite(f_edge):
+        res.notes.append(f"max_clock_edge_rule {_fmt(f_edge, 'Hz')}: the highest clock at "
+                         f"which every far-end edge keeps within {EDGE_FRACTION:.0%} of the "
+                         f"period (rule of thumb; set by {edge_sig}); it warns, it does not "
+                         "limit")
+    for fig, tid in (("cipo_setup_margin", "cipo-setup"), ("copi_setup_margin", "copi-setup"),
+                     ("copi_hold_margin", "copi-hold")):
+        res.figure(fig, worst.get(tid), "s")
+        if tid not in worst:
+            res.notes.append(f"{fig}: not computed (signal not routed or data missing)")
+        elif tid in why:
+            res.notes.append(f"{fig}: none, {why[tid]}")
+    return res
+
+
+def _term_check(t: Term, clock: float, warn: float, mode: int):
+    """The check of one timing term at the clock; when a flight has no finite time (a
+    receiver that never crosses its threshold) a failing check without a value, whose
+    ``reason`` says why."""
+    title, body = _TERM_TEXT[t.id]
+    source = t.source or "not recorded by the part: taken as 0"
+    details = {k: v for k, v in t.parts.items()} | {"mode": mode}
+    head = f"{title.format(ref=t.subject)}: "
+    avail = float(t.available(1.0 / clock))
+    if not math.isfinite(avail):
+        never = sorted({k.split("_")[0].upper() for k, v in t.parts.items()
+                        if isinstance(v, float) and not math.isfinite(v)})
+        what = " and ".join(never) or "a signal"
+        reason = (f"{what} never crosses the receiving input's threshold (VIH on a rise, VIL "
+                  "on a fall), so no time is available: see the line's level checks")
+        return Check(t.id, "fail", None, t.required, "s", None, source,
+                     head + reason + f"; {_fmt(t.required, 's')} required",
+                     subject=t.subject, details=details, reason=reason,
+                     fix="make the driver's high level reach the receiver's VIH (a "
+                         "level translator, or parts on one rail)")
+    return check_min(
+        t.id, avail, t.required, "s", source,
+        head + body.format(avail=_fmt(avail, "s"), req=_fmt(t.required, "s"))
+        + f" at {_fmt(clock, 'Hz')}", warn_margin=warn, subject=t.subject, details=details)

@@ -1,0 +1,99 @@
+"""The design as a whole (:class:`Design`) and the second pass of loading, which builds it from
+the validated file."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from pathlib import Path
+
+from pinlib.core import messages as M
+from pinlib.core import protocols
+from pinlib.core.errors import DesignError
+from pinlib.core.quantity import format_si
+from pinlib.core.tomlfile import line_index
+from pinlib.library.loader import Library
+from pinlib.model.design.buses import _one_part_per_reference, _open_drain_bus, _push_pull_bus
+from pinlib.model.design.objects import Bus, Device, Geometry
+from pinlib.model.design.raw import MODES, RawBus, RawDesign
+from pinlib.model.design.resolve import _geometries, _Resolver
+
+
+@dataclass(frozen=True)
+class Design:
+    title: str
+    path: Path | None
+    buses: tuple[Bus, ...]
+    geometries: dict[str, Geometry]
+    library: Library
+    warn_margin: float = 0.10
+    distribution: str = "uniform"
+    description: str | None = None
+    text: str = ""
+
+    def bus(self, bus_id: str) -> Bus:
+        for b in self.buses:
+            if b.id == bus_id:
+                return b
+        raise KeyError(bus_id)
+
+    def device(self, ref: str) -> tuple[Bus, Device]:
+        """The first (bus, device) with this reference designator."""
+        for b in self.buses:
+            for d in b.devices:
+                if d.ref == ref:
+                    return b, d
+        raise KeyError(ref)
+
+    def with_parts(self, swaps: dict[str, str]) -> Design:
+        """The same design with parts substituted by reference: ``{"U4": "eeprom-alt"}``."""
+        return _build(self._raw, self.path, self.library, self.text, swaps)
+
+    _raw: RawDesign | None = None
+
+
+def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict,
+           index: dict | None = None) -> Design:
+    index = line_index(text) if index is None else index
+    fname = str(path) if path else None
+    r = _Resolver(library, fname, index, swaps)
+    r.geometries = _geometries(raw, r.err)
+    buses = []
+    ids: set[str] = set()
+    for bi, rb in enumerate(raw.bus):
+        buses.append(_bus(rb, ("bus", bi), ids, r))
+    _one_part_per_reference(buses, r.err, fname, index)
+    unknown = set(swaps) - r.swapped
+    if unknown:
+        raise DesignError(M.NO_SUCH_REFERENCE, field="swap",
+                          value=sorted(unknown)[0], file=fname)
+    design = Design(raw.title, Path(path) if path else None, tuple(buses), r.geometries,
+                    library, raw.warn_margin, raw.distribution, raw.description, text)
+    object.__setattr__(design, "_raw", raw)
+    return design
+
+
+def _bus(rb: RawBus, bloc, ids: set[str], r: _Resolver) -> Bus:
+    """One bus of the file: its id unique, its mode and clock valid, then built by its
+    kind (open-drain or push-pull)."""
+    err = r.err
+    if rb.id in ids:
+        raise err(M.DUPLICATE_BUS_ID, bloc + ("id",), value=rb.id)
+    ids.add(rb.id)
+    modes = MODES.get(rb.protocol)
+    mode = rb.mode
+    if modes:
+        mode = mode or modes[1 if rb.protocol == "i2c" else 0]
+        if mode not in modes:
+            raise err(M.UNKNOWN_MODE, bloc + ("mode",), value=rb.mode,
+                      expected="one of " + ", ".join(modes))
+    elif rb.mode is not None:
+        raise err(M.BUS_HAS_NO_MODE.format(protocol=rb.protocol), bloc + ("mode",),
+                  value=rb.mode,
+                  hint="give its clock instead" if rb.protocol == "spi" else None)
+    if rb.clock is not None and not rb.clock > 0.0:
+        # Every engine divides by the clock (its period, its budget).
+        raise err(M.CLOCK_NOT_POSITIVE, bloc + ("clock",), value=format_si(rb.clock, "Hz"),
+                  expected='a clock such as "400 kHz"')
+    if protocols.is_open_drain(rb.protocol):
+        return _open_drain_bus(rb, bloc, mode, r.device, r.sections, r.cables, err)
+    return _push_pull_bus(rb, bloc, r.device, r.sections, err)

@@ -1,0 +1,175 @@
+"""One bus of a design built from its raw table and checked: open-drain (segments, bridging
+parts) or push-pull (routed lines); one part per reference designator."""
+
+from __future__ import annotations
+
+from pinlib.core import messages as M
+from pinlib.core import protocols
+from pinlib.core.tomlfile import dotted as dotted_path
+from pinlib.core.tomlfile import line_of
+from pinlib.model.design.objects import Bus, Device, Line, Segment
+from pinlib.model.design.raw import SIGNAL_FUNCTION, SPI_SIGNALS, RawBus
+
+_SEGMENT_KEYS = ("supply", "supply_tolerance", "pullup", "pullup_tolerance", "pullup_series",
+                 "trace", "extra_capacitance", "capacitance_tolerance", "length_tolerance")
+
+
+def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bus:
+    own, seg_locs = _segment_tables(rb, bloc, err)
+    segments = [_segment(rb, rs, sloc, si, len(own), device, sections, cables, err)
+                for si, (rs, sloc) in enumerate(zip(own, seg_locs, strict=True))]
+    all_devices: list[Device] = [d for seg in segments for d in seg.devices]
+    if not any(d.is_controller for d in all_devices):
+        raise err(M.BUS_NEEDS_CONTROLLER, bloc + ("devices",),
+                  hint="mark one device role = \"controller\"")
+    _check_open_drain_pins(rb, segments, err)
+    _check_bridges(segments, err)
+    return Bus(rb.id, rb.protocol, mode, rb.clock, segments[0].supply,
+               segments[0].supply_tolerance, tuple(segments), tuple(all_devices), {},
+               rb.spi_mode, rb.title, segments[0].capacitance_tolerance,
+               segments[0].length_tolerance, bloc)
+
+
+def _segment_tables(rb: RawBus, bloc, err) -> tuple[list, list]:
+    """The raw tables of an open-drain bus's segments and their places in the file: its
+    ``[[bus.segment]]`` tables, or the bus itself as its one segment."""
+    if rb.lines:
+        raise err(M.OPEN_DRAIN_NO_LINES, bloc + ("lines",),
+                  hint="give the bus (or each segment) a trace")
+    raws = list(rb.segment)
+    if raws and rb.devices:
+        raise err(M.DEVICES_IN_SEGMENTS, bloc + ("devices",))
+    # Capacitance belongs to one stretch of bus: inherited by every segment it would be
+    # counted once per segment.
+    for key in ("trace", "cables", "extra_capacitance"):
+        if raws and getattr(rb, key):
+            raise err(M.KEY_IN_SEGMENTS.format(key=key), bloc + (key,),
+                      hint="give each [[bus.segment]] its own")
+    if not raws:
+        return [rb], [bloc]
+    return raws, [bloc + ("segment", i) for i in range(len(raws))]
+
+
+def _segment(rb: RawBus, rs, sloc, si: int, count: int, device, sections, cables,
+             err) -> Segment:
+    """One segment of an open-drain bus; a key it does not give falls back to the bus's."""
+    def pick(key, default=None):
+        v = getattr(rs, key)
+        if v is None and rs is not rb:
+            v = getattr(rb, key)
+        return default if v is None else v
+
+    supply = pick("supply")
+    if supply is None:
+        raise err(M.BUS_NEEDS_PULLUP_SUPPLY, sloc + ("supply",),
+                  expected="supply = \"3.3 V\"")
+    if supply <= 0:
+        raise err(M.SUPPLY_NOT_POSITIVE, sloc + ("supply",), value=supply)
+    devices = tuple(device(d, sloc + ("devices", i)) for i, d in enumerate(rs.devices))
+    seg_id = rs.id or (rb.id if count == 1 else f"{rb.id}-{si + 1}")
+    cab = cables(rs.cables or (rb.cables if rs is not rb else ()), sloc + ("cables",))
+    series = pick("pullup_series", "E24")
+    from pinlib.core.eseries import SERIES_NAMES
+    if series.upper() not in SERIES_NAMES:
+        raise err(M.UNKNOWN_NUMBER_SERIES, sloc + ("pullup_series",), value=series,
+                  expected="one of " + ", ".join(SERIES_NAMES))
+    return Segment(
+        seg_id, supply, pick("supply_tolerance", 0.0), pick("pullup", "auto"),
+        pick("pullup_tolerance", 0.01), series.upper(),
+        sections(pick("trace"), sloc + ("trace",)), pick("extra_capacitance", 0.0),
+        pick("capacitance_tolerance", 0.0), pick("length_tolerance", 0.0), cab, devices,
+        sloc)
+
+
+def _check_open_drain_pins(rb: RawBus, segments: list[Segment], err) -> None:
+    """A bridging part names its side, no other part does, and every part has the pins
+    of the protocol (on its side)."""
+    for seg in segments:
+        for d in seg.devices:
+            side = d.side
+            if d.is_bridge and side is None:
+                raise err(M.BRIDGE_NEEDS_SIDE, d.loc + ("side",),
+                          expected='side = "a" or "b"')
+            if not d.is_bridge and side is not None:
+                raise err(M.SIDE_ONLY_FOR_BRIDGE, d.loc + ("side",), value=side)
+            for fn in protocols.protocol(rb.protocol).functions:
+                if d.part.pin_for(fn, side) is None:
+                    raise err(M.PART_LACKS_PIN_ON_SIDE.format(function=fn, side=side) if side
+                              else M.PART_LACKS_PIN.format(function=fn),
+                              d.loc + ("part",), value=d.part_id,
+                              hint="an I2C/SMBus device needs SDA and SCL pins")
+
+
+def _check_bridges(segments: list[Segment], err) -> None:
+    """Every bridging part sits in two segments, one on each side."""
+    bridges: dict[str, list[str]] = {}
+    for seg in segments:
+        for d in seg.devices:
+            if d.is_bridge:
+                bridges.setdefault(d.ref, []).append(d.side)
+    for ref, sides in bridges.items():
+        if sorted(sides) != ["a", "b"]:
+            loc = next(d.loc for s in segments for d in s.devices if d.ref == ref)
+            raise err(M.BRIDGE_IN_TWO_SEGMENTS, loc + ("ref",), value=ref,
+                      hint=f"found side(s): {', '.join(sides)}")
+
+
+def _push_pull_bus(rb: RawBus, bloc, device, sections, err) -> Bus:
+    if rb.segment:
+        raise err(M.BUS_HAS_NO_SEGMENTS.format(protocol=rb.protocol), bloc + ("segment",),
+                  hint="route each signal under lines.<signal>")
+    for key in ("pullup", "pullup_tolerance", "pullup_series", "cables"):
+        if getattr(rb, key):
+            raise err(M.BUS_HAS_NO_KEY.format(protocol=rb.protocol, key=key), bloc + (key,))
+    if rb.supply is None:
+        raise err(M.BUS_NEEDS_SUPPLY, bloc + ("supply",), expected="supply = \"3.3 V\"")
+    devices = tuple(device(d, bloc + ("devices", i)) for i, d in enumerate(rb.devices))
+    if not any(d.is_controller for d in devices):
+        raise err(M.BUS_NEEDS_CONTROLLER, bloc + ("devices",),
+                  hint="mark one device role = \"controller\"")
+    lines = {}
+    for sig, rt in rb.lines.items():
+        loc = bloc + ("lines", sig)
+        if rb.protocol == "spi" and sig not in SPI_SIGNALS:
+            raise err(M.UNKNOWN_SPI_SIGNAL, loc, value=sig, expected=", ".join(SPI_SIGNALS))
+        lines[sig] = Line(sig, sections(rt, loc), rt.series_resistor, rt.extra_capacitance, loc)
+    if rb.protocol == "spi":
+        if rb.clock is None:
+            raise err(M.SPI_NEEDS_CLOCK, bloc + ("clock",),
+                      expected="clock = \"25 MHz\"")
+        for d in devices:
+            # a controller drives the clock, data out and select; a peripheral needs the clock
+            driven = ("sclk", "copi", "cs") if d.is_controller else ("sclk",)
+            for fn in (SIGNAL_FUNCTION[sig] for sig in driven):
+                if d.part.pin_for(fn, d.side) is None and not d.is_bridge:
+                    raise err(M.PART_LACKS_PIN.format(function=fn), d.loc + ("part",),
+                              value=d.part_id)
+        if "sclk" not in lines:
+            raise err(M.SPI_NEEDS_SCLK, bloc + ("lines",),
+                      expected='lines.sclk = { length = "8 cm", geometry = "..." }')
+    return Bus(rb.id, rb.protocol, None, rb.clock, rb.supply, rb.supply_tolerance or 0.0, (),
+               devices, lines, rb.spi_mode, rb.title, rb.capacitance_tolerance or 0.0,
+               rb.length_tolerance or 0.0, bloc)
+
+
+def _one_part_per_reference(buses, err, fname, index) -> None:
+    """One reference designator is one chip: it may sit on several buses (one chip on two
+    buses), but always as the same part, and once per bus (a bridging part once per side).
+    """
+    seen: dict[str, tuple[Bus, Device]] = {}
+    for bus in buses:
+        for d in bus.devices:
+            first = seen.get(d.ref)
+            if first is None:
+                seen[d.ref] = (bus, d)
+                continue
+            fb, fd = first
+            where = f"{fname}:{line_of(index, fd.loc + ('ref',))}" if fname else \
+                f"line {line_of(index, fd.loc + ('ref',))}"
+            also = M.ALSO_AT.format(where=f"{where}, field '{dotted_path(fd.loc + ('ref',))}'",
+                                    part=fd.part_id)
+            if fd.part_id != d.part_id:
+                raise err(M.REFERENCE_TWO_PARTS.format(part=d.part_id, other=fd.part_id),
+                          d.loc + ("ref",), value=d.ref, hint=also)
+            if fb is bus and not (d.is_bridge and d.side != fd.side):
+                raise err(M.REFERENCE_TWICE_ON_BUS, d.loc + ("ref",), value=d.ref, hint=also)

@@ -1,0 +1,118 @@
+"""Loading a design file: the format, the bounds, the first pass (the schema), the library,
+then the build."""
+
+from __future__ import annotations
+
+import os
+from pathlib import Path
+
+from pydantic import ValidationError
+
+from pinlib.core import messages as M
+from pinlib.core import protocols
+from pinlib.core.errors import DesignError, LibraryError
+from pinlib.core.tomlfile import dotted as dotted_path
+from pinlib.core.tomlfile import line_index, line_of, load
+from pinlib.core.worklimits import (
+    MAX_DEVICES_OPEN_DRAIN,
+    MAX_DEVICES_PUSH_PULL,
+)
+from pinlib.library.folders import require_folders
+from pinlib.library.loader import Library, load_library, pydantic_errors
+from pinlib.model.design.build import Design, _build
+from pinlib.model.design.raw import FORMAT, RawDesign
+
+
+def load_design(path: str | os.PathLike, *, library_folders=(), library: Library | None = None,
+                swaps: dict[str, str] | None = None) -> Design:
+    """Load a design file and resolve its parts.
+
+    Parameters
+    ----------
+    path : path
+        The design file.
+    library_folders : iterable of paths
+        Extra team library folders (the command line's ``--library``); they take
+        precedence over the design's own ``library`` folders.
+    library : Library, optional
+        An already-merged library to use instead of loading one.
+    swaps : dict, optional
+        Parts to substitute, by reference designator.
+    """
+    path = Path(path)
+    data, text = load(path, error=DesignError)
+    return design_from_text(data, text, path, library_folders=library_folders, library=library,
+                            swaps=swaps)
+
+
+def design_from_text(data: dict, text: str, path: Path | None, *, library_folders=(),
+                     library: Library | None = None, swaps=None) -> Design:
+    index = line_index(text)
+    fname = str(path) if path else None
+
+    def at(loc):
+        return {"file": fname, "line": line_of(index, loc)}
+
+    if data.get("format") != FORMAT:
+        raise DesignError(M.NOT_A_DESIGN, field="format", value=data.get("format"),
+                          expected=f'format = "{FORMAT}"', **at(("format",)))
+    _refuse_too_many_devices(data, at)  # before validating what would not be checked
+    try:
+        raw = RawDesign.model_validate(data)
+    except ValidationError as exc:
+        errors = pydantic_errors(exc, file=fname, locate=lambda _f, loc: line_of(index, loc),
+                                 cls=DesignError, model=RawDesign, format_name="design")
+        # a misspelt key explains the required field it leaves missing: name it first
+        errors.sort(key=lambda e: e.problem != M.UNKNOWN_FIELD)
+        raise errors[0] from None
+    if library is None:
+        base = path.parent if path else Path.cwd()
+        own = [base / p for p in raw.library]
+        for i, folder in enumerate(own):
+            if not folder.is_dir():
+                raise DesignError(M.DESIGN_LIBRARY_MISSING, field=f"library[{i}]",
+                                  value=raw.library[i], hint=M.LOOKED_FOR.format(path=folder),
+                                  **at(("library", i)))
+        # PINLIB_LIBRARY and the caller's folders: an error naming the setting
+        require_folders(library_folders)
+        try:
+            library = load_library(own + [Path(p) for p in library_folders],
+                                   lazy=True)  # only the parts the design names
+        except LibraryError as exc:
+            if exc.field != "library":
+                raise
+            # a refused folder (a system folder, a walk past its bounds): where it is named
+            raise DesignError(exc.problem, field="library", value=exc.file,
+                              hint=exc.hint, **at(("library",))) from None
+    return _build(raw, path, library, text, swaps or {}, index)
+
+
+def _refuse_too_many_devices(data: dict, at) -> None:
+    """Refuse a bus with more devices than :mod:`pinlib.core.worklimits` allows (the
+    limit's reasons are there), from the file's tables before they are validated: a bus of
+    10^5 devices is refused in the time it takes to read it.  Anything not shaped like a
+    bus is left to the validation that follows."""
+    buses = data.get("bus")
+    if not isinstance(buses, list):
+        return
+    for bi, rb in enumerate(buses):
+        if not isinstance(rb, dict):
+            continue
+        own = rb.get("devices") if isinstance(rb.get("devices"), list) else []
+        segments = rb.get("segment") if isinstance(rb.get("segment"), list) else []
+        protocol = rb.get("protocol")
+        if not isinstance(protocol, str) or protocol not in protocols.NAMES:
+            continue  # the validation names the protocol that is wrong
+        if protocols.is_open_drain(protocol):
+            limit = MAX_DEVICES_OPEN_DRAIN
+            count = len(own) + sum(len(rs["devices"]) for rs in segments
+                                   if isinstance(rs, dict) and isinstance(rs.get("devices"), list))
+        else:
+            limit = MAX_DEVICES_PUSH_PULL
+            count = len(own)
+        if count > limit:
+            loc = ("bus", bi, "devices") if own or not segments else ("bus", bi, "segment")
+            raise DesignError(M.TOO_MANY_DEVICES.format(protocol=protocol), field=dotted_path(loc),
+                              value=f"{count:,} devices",
+                              expected=f"at most {limit:,} devices on one bus",
+                              hint="split the devices over several buses", **at(loc))

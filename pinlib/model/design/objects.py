@@ -1,0 +1,125 @@
+"""The resolved objects of a design that the engines read: geometries, sections, cables,
+devices, segments, lines and buses (plain dataclasses of SI floats)."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from pinlib.library.schema import Part
+
+
+@dataclass(frozen=True)
+class Geometry:
+    name: str
+    kind: str
+    width: float
+    height: float | None
+    spacing: float | None
+    thickness: float
+    er: float
+    method: str | None = None
+
+
+@dataclass(frozen=True)
+class Section:
+    """A stretch of a line: a board trace of a named geometry, per-length values given
+    directly, or a cable class from the library."""
+
+    length: float
+    geometry: Geometry | None = None
+    capacitance: float | None = None  # F/m
+    delay: float | None = None        # s/m
+    impedance: float | None = None    # Ω, from a cable class
+    part_id: str | None = None
+
+
+@dataclass(frozen=True)
+class Cable:
+    part_id: str
+    part: Part
+    length: float
+
+
+@dataclass(frozen=True)
+class Device:
+    ref: str
+    part_id: str
+    part: Part
+    role: str = "peripheral"
+    supply: float | None = None       # the device's own rail; None: the bus supply
+    switched: bool = False
+    series_resistor: float | None = None
+    side: str | None = None
+    internal_pullups: bool = False
+    pin: str | None = None
+    capacitance_tolerance: float | None = None
+    loc: tuple = ()                   # its place in the file, for messages
+    capacitance_factor: float = 1.0   # a drawn board's pin capacitance over the stored one
+
+    @property
+    def is_controller(self) -> bool:
+        return self.role == "controller"
+
+    @property
+    def is_bridge(self) -> bool:
+        return bool(self.part.sides)
+
+
+@dataclass(frozen=True)
+class Segment:
+    """A stretch of open-drain bus with one supply and one pull-up per line."""
+
+    id: str
+    supply: float
+    supply_tolerance: float
+    pullup: object                    # "auto" or a resistance [Ω]
+    pullup_tolerance: float
+    pullup_series: str
+    sections: tuple[Section, ...]
+    extra_capacitance: float
+    capacitance_tolerance: float
+    length_tolerance: float
+    cables: tuple[Cable, ...]
+    devices: tuple[Device, ...]
+    loc: tuple = ()
+
+
+@dataclass(frozen=True)
+class Line:
+    """One routed push-pull signal."""
+
+    signal: str
+    sections: tuple[Section, ...]
+    series_resistor: object           # "auto", "none" or a resistance [Ω]
+    extra_capacitance: float = 0.0
+    loc: tuple = ()
+
+    @property
+    def length(self) -> float:
+        return sum(s.length for s in self.sections)
+
+
+@dataclass(frozen=True)
+class Bus:
+    id: str
+    protocol: str
+    mode: str | None
+    clock: float | None
+    supply: float | None
+    supply_tolerance: float
+    segments: tuple[Segment, ...] = ()
+    devices: tuple[Device, ...] = ()  # every device (all segments)
+    lines: dict[str, Line] = field(default_factory=dict)
+    spi_mode: int = 0
+    title: str | None = None
+    capacitance_tolerance: float = 0.0
+    length_tolerance: float = 0.0
+    loc: tuple = ()
+
+    @property
+    def controllers(self) -> list[Device]:
+        return [d for d in self.devices if d.is_controller]
+
+    @property
+    def peripherals(self) -> list[Device]:
+        return [d for d in self.devices if not d.is_controller]

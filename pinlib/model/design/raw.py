@@ -1,0 +1,182 @@
+"""The schema of a design file: pydantic models whose fields carry their units and ranges (the
+first pass of loading)."""
+
+from __future__ import annotations
+
+from typing import Annotated, Literal
+
+from pydantic import BaseModel, BeforeValidator, ConfigDict, Field
+
+from pinlib.core import messages as M
+from pinlib.core import protocols
+from pinlib.core.errors import DesignError
+from pinlib.core.quantity import format_si, parse
+
+FORMAT = "pinlib.design/1"
+PROTOCOLS = protocols.NAMES
+MODES = {"i2c": ("standard", "fast", "fast-plus"), "smbus": ("100k", "400k", "1m")}
+SPI_SIGNALS = protocols.protocol("spi").signal_names
+# The pin function each signal of a protocol uses.
+SIGNAL_FUNCTION = protocols.SIGNAL_FUNCTION
+
+
+def _unit_validator(unit, lo=None, hi=None):
+    def validate(raw, info=None):
+        x = parse(raw, unit, field=getattr(info, "field_name", None))
+        if x < 0 and unit not in ("V",):
+            raise DesignError(M.NEGATIVE_VALUE, value=raw, expected="zero or more")
+        if (lo is not None and x < lo) or (hi is not None and x > hi):
+            raise DesignError(M.OUTSIDE_RANGE, value=raw,
+                              expected=f"between {format_si(lo, unit)} and "
+                                       f"{format_si(hi, unit)}")
+        return x
+
+    return validate
+
+
+class _AsWritten:
+    """What a file writes for a value with a unit (a string; or one of ``words``), for the
+    JSON Schema of design files (:mod:`pinlib.model.designschema`): pydantic would
+    describe the float it becomes.  The pattern is built only when a schema is asked for."""
+
+    def __init__(self, unit: str, words: tuple = ()):
+        self.unit, self.words = unit, words
+
+    def __get_pydantic_json_schema__(self, core_schema, handler):
+        from pinlib.core.quantity import UNITS
+        from pinlib.library.jsonschema import quantity_pattern
+
+        what, example = UNITS[self.unit]
+        text = f"{what}, e.g. '{example}'"
+        string = {"type": "string", "pattern": quantity_pattern(self.unit)}
+        if not self.words:
+            return {**string, "description": text}
+        words = " or ".join(f"'{w}'" for w in self.words)
+        return {"anyOf": [{"enum": list(self.words)}, string],
+                "description": f"{words}, or {text}"}
+
+
+def _unit(unit, lo=None, hi=None):
+    return Annotated[float, BeforeValidator(_unit_validator(unit, lo, hi)), _AsWritten(unit)]
+
+
+def _auto_or(unit, lo=None, hi=None, words=("auto",)):
+    # Parse here: handed on as text, "2.2 kΩ" would satisfy the str side of the union and
+    # stay a string.
+    quantity = _unit_validator(unit, lo, hi)
+
+    def validate(raw, info=None):
+        if isinstance(raw, str) and raw.strip().lower() in words:
+            return raw.strip().lower()
+        return quantity(raw, info)
+
+    return Annotated[str | float, BeforeValidator(validate), _AsWritten(unit, words)]
+
+
+Length = _unit("m", 0.0, 1000.0)
+Capacitance = _unit("F", 0.0, 1e-6)
+Resistance = _unit("Ω", 0.0, 1e9)
+Voltage = _unit("V", -100.0, 100.0)
+Frequency = _unit("Hz", 0.0, 100e9)
+Ratio = _unit("%", 0.0, 1.0)
+# A tolerance that takes a pull-up or a supply down to zero leaves nothing to compute
+# (a 100 % pull-up tolerance is a 0 Ω pull-up at its low end); half is already far past
+# any real part (common practice, no source).
+Tolerance = _unit("%", 0.0, 0.5)
+# Board cross-sections: 10 µm to 100 mm for widths and heights, copper up to 1 mm thick.
+# Outside this the trace models give impedances (and the line solver time grids) that no
+# board has (common practice, no source).
+Dimension = _unit("m", 10e-6, 0.1)
+Thickness = _unit("m", 0.0, 1e-3)
+CapPerLength = _unit("F/m", 0.0, 1e-6)
+DelayPerLength = _unit("s/m", 1e-9, 1e-6)
+PullupSetting = _auto_or("Ω", 1e-3, 1e9, words=("auto",))
+SeriesSetting = _auto_or("Ω", 0.0, 1e6, words=("auto", "none"))
+
+
+class _Raw(BaseModel):
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+
+class RawGeometry(_Raw):
+    kind: Literal["microstrip", "stripline"]
+    width: Dimension
+    height: Dimension | None = None   # microstrip: to the plane; stripline: to each plane
+    spacing: Dimension | None = None  # stripline: plane to plane
+    thickness: Thickness = 35e-6      # 1 oz copper, common practice
+    er: Annotated[float, Field(ge=1.0, le=100.0)]
+    method: str | None = None
+
+
+class RawSection(_Raw):
+    length: Length
+    geometry: str | None = None
+    capacitance: CapPerLength | None = None
+    delay: DelayPerLength | None = None
+    part: str | None = None           # a cable class from the library
+
+
+class RawTrace(RawSection):
+    sections: tuple[RawSection, ...] = ()
+    length: Length | None = None  # type: ignore[assignment]
+    series_resistor: SeriesSetting = "none"  # push-pull lines only
+    extra_capacitance: Capacitance = 0.0
+
+
+class RawCable(_Raw):
+    part: str
+    length: Length
+
+
+class RawDevice(_Raw):
+    ref: Annotated[str, Field(min_length=1, max_length=40)]
+    part: str
+    role: Literal["controller", "peripheral", "target"] = "peripheral"
+    supply: Voltage | None = None
+    switched: bool = False
+    series_resistor: Resistance | None = None
+    side: Literal["a", "b"] | None = None
+    internal_pullups: bool = False
+    pin: str | None = None
+    capacitance_tolerance: Ratio | None = None
+
+
+class RawSegment(_Raw):
+    id: str | None = None
+    supply: Voltage | None = None
+    supply_tolerance: Tolerance | None = None
+    pullup: PullupSetting | None = None
+    pullup_tolerance: Tolerance | None = None
+    pullup_series: str | None = None
+    trace: RawTrace | None = None
+    extra_capacitance: Capacitance | None = None
+    capacitance_tolerance: Ratio | None = None
+    length_tolerance: Ratio | None = None
+    cables: tuple[RawCable, ...] = ()
+    devices: tuple[RawDevice, ...] = ()
+
+
+class RawBus(RawSegment):
+    id: str
+    protocol: Literal[PROTOCOLS]  # type: ignore[valid-type]
+    title: str | None = None
+    mode: str | None = None
+    clock: Frequency | None = None
+    spi_mode: Annotated[int, Field(ge=0, le=3)] = 0
+    segment: tuple[RawSegment, ...] = ()
+    lines: dict[str, RawTrace] = Field(default_factory=dict)
+
+
+class RawBoard(_Raw):
+    geometry: dict[str, RawGeometry] = Field(default_factory=dict)
+
+
+class RawDesign(_Raw):
+    format: Literal["pinlib.design/1"]
+    title: str
+    description: str | None = None
+    library: tuple[str, ...] = ()
+    warn_margin: Ratio = 0.10
+    distribution: Literal["uniform", "normal"] = "uniform"
+    board: RawBoard = RawBoard()
+    bus: tuple[RawBus, ...] = ()

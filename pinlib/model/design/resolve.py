@@ -1,0 +1,140 @@
+"""The references of a design file resolved: parts against the library, geometry names against
+``[board.geometry]``; devices, sections and cables built from the raw tables."""
+
+from __future__ import annotations
+
+from pinlib.core import messages as M
+from pinlib.core.errors import DesignError, PinlibError
+from pinlib.core.quantity import format_si
+from pinlib.core.tomlfile import dotted as dotted_path
+from pinlib.core.tomlfile import line_of
+from pinlib.core.worklimits import (
+    MAX_SECTIONS_PER_LINE,
+)
+from pinlib.library.loader import Library
+from pinlib.library.schema import Part
+from pinlib.model.design.objects import Cable, Device, Geometry, Section
+from pinlib.model.design.raw import RawDesign, RawDevice, RawSection, RawTrace
+
+
+class _Resolver:
+    """The references of one design file resolved: parts against the library, geometry
+    names against ``[board.geometry]``; devices, sections and cables built from the raw
+    tables.  Every error names the file, line and field."""
+
+    def __init__(self, library: Library, fname: str | None, index: dict, swaps: dict):
+        self.library = library
+        self.fname = fname
+        self.index = index
+        self.swaps = swaps
+        self.swapped: set[str] = set()
+        self.geometries: dict[str, Geometry] = {}
+
+    def err(self, problem, loc, **kw):
+        dotted = dotted_path(loc)
+        return DesignError(problem, file=self.fname, line=line_of(self.index, loc),
+                           field=dotted, **kw)
+
+    def part_of(self, part_id: str, loc) -> Part:
+        # A part whose file does not validate is the library's error at that file (it
+        # names this place); an unknown id is this file's error.
+        try:
+            return self.library.get(part_id, file=self.fname, line=line_of(self.index, loc),
+                                    field=dotted_path(loc))
+        except PinlibError as e:
+            if e.problem != M.UNKNOWN_PART:
+                raise
+            raise self.err(M.UNKNOWN_PART, loc, value=part_id, hint=e.hint) from None
+
+    def device(self, d: RawDevice, loc) -> Device:
+        err = self.err
+        part_id = self.swaps.get(d.ref, d.part)
+        if d.ref in self.swaps:
+            self.swapped.add(d.ref)
+        part = self.part_of(part_id, loc + ("part",))
+        if part.abstract:
+            raise err(M.ABSTRACT_ON_BOARD, loc + ("part",),
+                      value=part_id, hint="place a part that extends it, or `pinlib parts new`")
+        if part.category == "cable":
+            raise err(M.CABLE_AS_DEVICE, loc + ("part",),
+                      value=part_id)
+        if d.supply is not None and not d.supply > 0:
+            raise err(M.SUPPLY_NOT_POSITIVE, loc + ("supply",), value=format_si(d.supply, "V"))
+        role = "peripheral" if d.role == "target" else d.role
+        return Device(d.ref, part_id, part, role, d.supply, d.switched, d.series_resistor,
+                      d.side, d.internal_pullups, d.pin, d.capacitance_tolerance, loc)
+
+    def too_many_sections(self, count, loc):
+        return self.err(M.TOO_MANY_SECTIONS, loc, value=f"{count:,} sections",
+                        expected=f"at most {MAX_SECTIONS_PER_LINE:,} sections",
+                        hint="join stretches of one geometry into one (their lengths add up)")
+
+    def sections(self, t: RawTrace | RawSection | None, loc) -> tuple[Section, ...]:
+        if t is None:
+            return ()
+        err = self.err
+        subs = getattr(t, "sections", ())
+        if subs:
+            if t.length is not None or t.geometry or t.capacitance or t.part:
+                raise err(M.SECTIONS_OR_STRETCH, loc + ("sections",))
+            if len(subs) > MAX_SECTIONS_PER_LINE:  # before building any of them
+                raise self.too_many_sections(len(subs), loc + ("sections",))
+            out: list[Section] = []
+            for i, s in enumerate(subs):
+                out.extend(self.sections(s, loc + ("sections", i)))
+            return tuple(out)
+        if t.length is None:
+            raise err(M.TRACE_NEEDS_LENGTH, loc + ("length",))
+        if t.part:
+            return (self._cable_section(t, loc),)
+        if t.geometry:
+            geometries = self.geometries
+            if t.geometry not in geometries:
+                raise err(M.UNKNOWN_GEOMETRY, loc + ("geometry",), value=t.geometry,
+                          hint="defined: " + (", ".join(geometries) or "none; add "
+                                              "[board.geometry.NAME]"))
+            if t.capacitance is not None or t.delay is not None:
+                raise err(M.GEOMETRY_OR_PER_LENGTH, loc + ("capacitance",))
+            return (Section(t.length, geometries[t.geometry]),)
+        if t.capacitance is None:
+            raise err(M.TRACE_NEEDS_GEOMETRY, loc + ("geometry",),
+                      expected="geometry = \"NAME\" or capacitance = "
+                      "\"0.8 pF/cm\"")
+        return (Section(t.length, None, t.capacitance, t.delay),)
+
+    def _cable_section(self, t: RawTrace | RawSection, loc) -> Section:
+        cable = self.part_of(t.part, loc + ("part",))
+        if cable.line is None:
+            raise self.err(M.NOT_A_CABLE, loc + ("part",), value=t.part)
+        return Section(t.length, None, cable.line.capacitance.value,
+                       cable.line.delay.value if cable.line.delay else None,
+                       cable.line.impedance.value if cable.line.impedance else None,
+                       t.part)
+
+    def cables(self, items, loc) -> tuple[Cable, ...]:
+        out = []
+        for i, c in enumerate(items):
+            part = self.part_of(c.part, loc + (i, "part"))
+            if part.line is None:
+                raise self.err(M.NOT_A_CABLE, loc + (i, "part"), value=c.part)
+            out.append(Cable(c.part, part, c.length))
+        return tuple(out)
+
+
+def _geometries(raw: RawDesign, err) -> dict[str, Geometry]:
+    """The board's named trace geometries, each with what its kind needs."""
+    geometries = {
+        name: Geometry(name, g.kind, g.width, g.height, g.spacing, g.thickness, g.er, g.method)
+        for name, g in raw.board.geometry.items()
+    }
+    for name, g in geometries.items():
+        loc = ("board", "geometry", name)
+        if g.kind == "microstrip" and g.height is None:
+            raise err(M.MICROSTRIP_NEEDS_HEIGHT, loc + ("height",))
+        if g.kind == "stripline" and g.height is None and g.spacing is None:
+            raise err(M.STRIPLINE_NEEDS_SPACING, loc + ("spacing",))
+        if g.kind == "stripline" and g.spacing is not None and not g.spacing > g.thickness:
+            raise err(M.SPACING_NOT_ABOVE_COPPER, loc + ("spacing",),
+                      value=format_si(g.spacing, "m"),
+                      expected=f"more than the copper thickness, {format_si(g.thickness, 'm')}")
+    return geometries
