@@ -137,7 +137,7 @@ def test_one_design_keeps_the_full_report(tmp_path, capsys):
     code_one = main(["check", str(path)])
     one = capsys.readouterr().out
     assert code_one in (0, 1)
-    assert "bus sensors (" in one  # the full report, not a summary line
+    assert "sensors (I2C)" in one  # the design's own report (a line per bus), not a summary line
 
 
 def test_many_designs_one_line_each_and_the_worst_exit_code(tmp_path, capsys, monkeypatch):
