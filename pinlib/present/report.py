@@ -125,10 +125,34 @@ def _spi(bus: BusResult) -> list[str]:
     if clock:
         by = _fig_text(bus, "max_clock_limited_by")
         parts.append(f"max clock {clock}" + (f" (set by {by})" if by else ""))
+    slack = _timing_slack(bus)
+    if slack:
+        parts.append(slack)
     worst = _worst_text(bus)
     if worst:
         parts.append(worst)
     return parts
+
+
+#: The SPI timing-budget figures (available minus required time at the design's clock)
+#: and the requirement each names.
+_SLACK_FIGURES = (("cipo_setup_margin", "CIPO setup"), ("copi_setup_margin", "COPI setup"),
+                  ("copi_hold_margin", "COPI hold"))
+
+
+def _timing_slack(bus: BusResult) -> str | None:
+    """The smallest timing-budget slack at the design's clock, in time, and which
+    requirement has it (a margin of the budget, apart from the parts' ratings)."""
+    got = []
+    for name, what in _SLACK_FIGURES:
+        f = bus.figures.get(name)
+        if f is not None and isinstance(f.value, (int, float)) and not isinstance(f.value, bool) \
+                and math.isfinite(f.value):
+            got.append((float(f.value), f.unit, what))
+    if not got:
+        return None
+    value, unit, what = min(got)
+    return f"timing slack {format_value(value, unit)} ({what})"
 
 
 def _gpio(bus: BusResult) -> list[str]:
