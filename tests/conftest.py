@@ -12,3 +12,10 @@ def _no_fit_store_between_runs(monkeypatch):
 
     monkeypatch.setenv("PINLIB_CACHE_DIR", "off")
     monkeypatch.setattr(driver, "FIT_STORE", None)
+
+
+@pytest.fixture(autouse=True)
+def _no_inherited_terminal_width(monkeypatch):
+    # The command fits its text and tables to COLUMNS when it is set; a shell that exports
+    # it must not change what the tests read (tests that want a width set it themselves).
+    monkeypatch.delenv("COLUMNS", raising=False)

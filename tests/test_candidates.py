@@ -246,3 +246,21 @@ def test_counts_add_up(capsys):
     data = json.loads(capsys.readouterr().out)
     assert (data["count"] + data["excluded"] + sum(data["set_aside"].values())
             == data["library_parts"])
+
+
+def test_the_worst_check_is_one_of_the_worst_status():
+    # a rating met exactly passes at margin 0, below a warning's positive margin: the
+    # check named as the worst is the warning (it sets the status), not the passing one
+    from types import SimpleNamespace
+
+    from pinlib.model.result import BusResult, Check
+    from pinlib.studies.candidates import _summary_of
+
+    r = BusResult(id="b", protocol="i2c")
+    r.add(Check("device-speed", "pass", 4e5, 4e5, "Hz", 0.0, "rating", "at the rating"))
+    r.add(Check("rise-time", "warn", 270e-9, 300e-9, "s", 0.05, "limit", "close"))
+    dev = SimpleNamespace(is_bridge=False, ref="U2")
+    bus = SimpleNamespace(protocol="i2c", segments=[])
+    status, margin, where, _, margins = _summary_of([r], [(bus, dev)])
+    assert status == "warn" and where["id"] == "rise-time" and margin == 0.05
+    assert margins == [0.0, 0.05]  # the ranked margins are all kept, smallest first

@@ -465,6 +465,13 @@ def _(env):  # a bus table has 19 fields: ten are listed, the closest named apar
                   env).message
 
 
+@case("COLUMNS_LEFT_OUT", M.COLUMNS_LEFT_OUT.split("{")[0])
+def _(env):
+    env.monkeypatch.setenv("COLUMNS", "60")  # a table wider than that drops columns
+    assert main(["parts", "list"]) == 0
+    return env.capsys.readouterr().out
+
+
 @case("FOLDER_NAMED_BY", M.FOLDER_NAMED_BY.format(source="PINLIB_LIBRARY"))
 def _(env):
     env.monkeypatch.setenv("PINLIB_LIBRARY", str(env.tmp / "gone"))

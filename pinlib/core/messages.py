@@ -82,6 +82,8 @@ EXTENDS_UNKNOWN = "extends a part that is not in the library"
 # the expected text of UNKNOWN_FIELD (pinlib/library/fields.py)
 EXPECTED_FIELD_OF = "a field of the {format} format here: {fields}"
 MORE_FIELDS = " and {n} more"
+# under a table cut to the terminal's width (pinlib/core/texttable.py)
+COLUMNS_LEFT_OUT = "(not shown at this width: {columns}; a wider terminal or --json shows them)"
 PART_DOES_NOT_VALIDATE = "part '{part}' does not load: {problem}"
 # hints of PART_DOES_NOT_VALIDATE and UNKNOWN_PART
 NAMED_AT = "the part is named at {where}"

@@ -96,7 +96,8 @@ class BenchComparison:
             "source": "RC rise t = Rp (Cb + C_probe) ln((1 - lo)/(1 - hi)), UM10204 rev. 6 §7.1",
         }
 
-    def format_text(self) -> str:
+    def format_text(self, width: int | None = None) -> str:
+        """The comparison as text, each line wrapped to ``width`` (None: no limit)."""
         lo, hi = self.levels
         f = format_si
         lines = [
@@ -113,6 +114,12 @@ class BenchComparison:
                    "below": M.BENCH_BELOW}[self.verdict]
         lines.append("  " + verdict)
         lines += [f"  - {r}" for r in self.revisit]
+        if width is not None:
+            import textwrap
+
+            lines = [w for ln in lines for w in textwrap.wrap(
+                ln, width, initial_indent="", subsequent_indent=" " * (
+                    len(ln) - len(ln.lstrip()) + 4)) or [""]]
         return "\n".join(lines) + "\n"
 
 

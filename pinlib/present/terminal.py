@@ -44,6 +44,22 @@ def width() -> int:
     return max(MIN_WIDTH, cols)
 
 
+def table_width(stream=None) -> int | None:
+    """The width a table is fitted to: COLUMNS when set, else the terminal's width when
+    ``stream`` (standard output by default) is a terminal, else None — output piped to
+    a file or another program keeps every column whole."""
+    import sys
+
+    stream = sys.stdout if stream is None else stream
+    if os.environ.get("COLUMNS", "").strip().isdigit():
+        return width()
+    try:
+        tty = stream.isatty()
+    except (AttributeError, ValueError):
+        tty = False
+    return width() if tty else None
+
+
 def use_colour(stream) -> bool:
     """True when ``stream`` is a terminal and NO_COLOR is unset or empty."""
     if os.environ.get("NO_COLOR"):

@@ -26,6 +26,7 @@ Nothing here computes a figure: the engines do.
 from __future__ import annotations
 
 import math
+import textwrap
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -35,6 +36,7 @@ from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.progress import progress_bar
 from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS
 from pinlib.core.quantity import format_si
+from pinlib.core.texttable import fit_table
 from pinlib.engines import opendrain as od
 from pinlib.engines.opendrain import batch as ob
 from pinlib.library.schema import CATEGORIES, Part
@@ -177,12 +179,15 @@ class Ranking:
                 "set_aside": dict(self.set_aside), "count": len(self.candidates),
                 "candidates": [c.to_json() for c in shown], "notes": list(self.notes)}
 
-    def format_text(self, top: int | None = 20) -> str:
+    def format_text(self, top: int | None = 20, width: int | None = None) -> str:
+        """The ranking as text; ``width``: characters per line (None: no limit), the
+        table's trailing figure columns left out (and named) where they do not fit."""
         where = "; ".join(f"bus {b['bus']} ({b['protocol']}"
                           + (f", segment {b['segment']}" if b.get("segment") else "")
                           + f", {b['role']})" for b in self.buses)
-        lines = [f"position {self.ref}, now {self.current}: {where}",
-                 self.count_text()]
+        lines = [f"position {self.ref}, now {self.current}: {where}", self.count_text()]
+        if width is not None:
+            lines = [w for ln in lines for w in textwrap.wrap(ln, width, subsequent_indent="    ")]
         shown = self.candidates if top is None else self.candidates[:top]
         if shown:
             fig_cols = []
@@ -208,11 +213,12 @@ class Ranking:
                     v = c.figures.get(b, {}).get(n)
                     row.append("—" if v is None or v[0] is None else format_si(v[0], unit))
                 rows.append(row)
-            widths = [max(len(r[k]) for r in rows + [head]) for k in range(len(head))]
+            table, dropped = fit_table(head, rows, width, keep=5)
             lines.append("")
-            lines.append("  ".join(h.ljust(w) for h, w in zip(head, widths, strict=True)).rstrip())
-            for r in rows:
-                lines.append("  ".join(x.ljust(w) for x, w in zip(r, widths, strict=True)).rstrip())
+            lines += table
+            if dropped:
+                lines += textwrap.wrap(M.COLUMNS_LEFT_OUT.format(columns=", ".join(dropped)),
+                                       width)
             if len(shown) < len(self.candidates):
                 lines.append(f"… {len(self.candidates) - len(shown)} more (--top N)")
             lines.append("* the part in the design now")
@@ -303,7 +309,7 @@ def _summary_of(results: list[BusResult], places) -> tuple:
     """Status, worst margin, where it is, the figures and the ranked margins, from
     engine results."""
     status = worst(r.status for r in results)
-    best, where, margins = None, None, []
+    best, where, margins, rank = None, None, [], None
     for r, (_, dev) in zip(results, places, strict=True):
         for seg_id, line, c in r.all_checks():
             # a margin that does not exist (its check says why) counts as −inf, as in a batch
@@ -311,9 +317,12 @@ def _summary_of(results: list[BusResult], places) -> tuple:
                 continue
             m = _margin_key(c.margin)
             margins.append(m)
-            if best is None or m < best:
-                best, where = m, {"bus": r.id, "segment": seg_id, "line": line, "id": c.id,
-                                  "subject": c.subject}
+            # the worst is a check of the worst status, then of the smallest margin: a warn
+            # is set by a warning check, not by a passing one at a smaller margin
+            key = (-_RANK.get(c.status, 0), m)
+            if rank is None or key < rank:
+                rank, best, where = key, m, {"bus": r.id, "segment": seg_id, "line": line,
+                                             "id": c.id, "subject": c.subject}
     figures = {}
     for r, (bus, dev) in zip(results, places, strict=True):
         if bus.protocol in OPEN_DRAIN_PROTOCOLS:
@@ -388,7 +397,7 @@ def _batch_summaries(bus: Bus, dev: Device, design: Design, ref: str, parts: lis
     """Per candidate: (status code, worst margin, where, figures) on one open-drain bus,
     from one batch."""
     bb = ob.build(bus, design, ob.WorstCase(len(parts)), swap=(ref, parts), collected=collected)
-    cols, where = [], []
+    cols, codes, where = [], [], []
     status = np.zeros(len(parts), dtype=np.int8)
     single = len(bus.segments) == 1
     for seg_id, c in bb.checks():
@@ -396,6 +405,7 @@ def _batch_summaries(bus: Bus, dev: Device, design: Design, ref: str, parts: lis
         if c.margin is None or not _ranks(c.id, dev):
             continue
         cols.append(np.where(np.isnan(c.margin), -np.inf, c.margin))
+        codes.append(c.status)
         where.append({"bus": bus.id, "segment": None if single else seg_id,
                       "line": None, "id": c.id, "signal": c.signal})
     seg = next(s.id for s in bus.segments if any(d.ref == ref for d in s.devices))
@@ -403,7 +413,11 @@ def _batch_summaries(bus: Bus, dev: Device, design: Design, ref: str, parts: lis
     out = []
     if cols:
         mg = np.stack(cols, axis=1)
-        idx = np.argmin(mg, axis=1)
+        # the worst: a check of the worst status, then of the smallest margin (as
+        # _summary_of); where no ranked check has that status, the smallest margin
+        worst_status = np.stack(codes, axis=1) == np.max(np.stack(codes, axis=1), axis=1,
+                                                          keepdims=True)
+        idx = np.argmin(np.where(worst_status, mg, np.inf), axis=1)
         ranked = np.sort(mg, axis=1)
     for j in range(len(parts)):
         figs = {}

@@ -79,6 +79,8 @@ def run(args) -> int:
         json.dump(ranking.to_json(args.top), sys.stdout, indent=2, ensure_ascii=False)
         sys.stdout.write("\n")
     else:
-        sys.stdout.write(ranking.format_text(args.top or 20))
+        from pinlib.present.terminal import table_width
+
+        sys.stdout.write(ranking.format_text(args.top or 20, width=table_width()))
     good = any(c.status in ("pass", "warn") for c in ranking.candidates)
     return 0 if good else 1

@@ -81,5 +81,7 @@ def run(args) -> int:
         json.dump(got.to_json(), sys.stdout, indent=2, ensure_ascii=False)
         sys.stdout.write("\n")
     else:
-        sys.stdout.write(got.format_text())
+        from pinlib.present.terminal import table_width
+
+        sys.stdout.write(got.format_text(width=table_width()))
     return 0 if got.verdict == "agrees" else 1

@@ -221,12 +221,18 @@ def _kind(lib, pid) -> str:
     return text
 
 
-def _table(rows: list[list[str]], header: list[str]) -> str:
-    widths = [max(len(str(r[i])) for r in rows + [header]) for i in range(len(header))]
-    lines = ["  ".join(str(c).ljust(w) for c, w in zip(header, widths, strict=True)).rstrip(),
-             "  ".join("-" * w for w in widths)]
-    for r in rows:
-        lines.append("  ".join(str(c).ljust(w) for c, w in zip(r, widths, strict=True)).rstrip())
+def _table(rows: list[list[str]], header: list[str], keep: int = 2) -> str:
+    """The table fitted to the terminal's width (COLUMNS; piped output whole): columns that do not
+    fit are left out and named; a long cell wraps inside its column."""
+    import textwrap
+
+    from pinlib.core.texttable import fit_table
+    from pinlib.present.terminal import table_width
+
+    cols = table_width()
+    lines, dropped = fit_table(header, rows, cols, keep=keep, rule=True)
+    if dropped:
+        lines += textwrap.wrap(M.COLUMNS_LEFT_OUT.format(columns=", ".join(dropped)), cols)
     return "\n".join(lines)
 
 
@@ -283,7 +289,7 @@ def _run_list(args) -> int:
              ", ".join(label + _range_text(s) for label, s in _supplies(p)) or "-",
              ", ".join(sorted(p.functions())) or "-", _kind(lib, p.id), p.title]
             for p in chosen]
-    print(_table(rows, ["id", "category", "supply", "pin functions", "kind", "title"]))
+    print(_table(rows, ["id", "category", "supply", "pin functions", "kind", "title"], keep=4))
     return 0
 
 
@@ -439,7 +445,8 @@ def _run_show(args) -> int:
         origin = "" if not v["inherited"] else f"{v['origin']} ({_rel(v['origin_file'])})"
         rows.append([v["field"], shown, _typ_text(v), basis, v["source"] or "", origin])
     if rows:
-        print(_table(rows, ["field", "value", "typ", "basis", "source", "inherited from"]))
+        print(_table(rows, ["field", "value", "typ", "basis", "source", "inherited from"],
+                     keep=5))
     else:
         print("(no values)")
     print()
