@@ -2410,6 +2410,66 @@ def _(env):
     return env.cli("workbench", _workbooks(env))
 
 
+# ---------------------------------------------------------------- library.ibis
+def _ibis_fails(env, text):
+    from pinlib.library.ibis import read_ibis
+    return _fails(lambda e: read_ibis(e.write("m.ibs", text)), env)
+
+
+def _ibis(breaks):
+    from tests.test_ibis import ibis_text
+    return breaks(ibis_text())
+
+
+@case("IBIS_NOT_A_NUMBER")
+def _(env):
+    return _ibis_fails(env, _ibis(lambda t: t.replace("Rref = 50", "Rref = fifty")))
+
+
+@case("IBIS_NA_NOT_ALLOWED")
+def _(env):
+    return _ibis_fails(env, _ibis(lambda t: t.replace("Vinl = 0.8V", "Vinl = NA")))
+
+
+@case("IBIS_WRONG_COLUMNS", M.IBIS_WRONG_COLUMNS.format(found=2, expected=3))
+def _(env):
+    return _ibis_fails(env, _ibis(lambda t: t.replace("R_pkg  0.2  0.1  0.3", "R_pkg 0.2 0.1")))
+
+
+@case("IBIS_MISSING_KEYWORD", M.IBIS_MISSING_KEYWORD.format(keyword="[Component]"))
+def _(env):
+    return _ibis_fails(env, "[IBIS Ver] 5.0\n[File Name] m.ibs\n[File Rev] 1\n")
+
+
+@case("IBIS_DATA_BEFORE_KEYWORD")
+def _(env):
+    return _ibis_fails(env, "stray words\n[IBIS Ver] 5.0\n")
+
+
+@case("IBIS_OUTSIDE_SECTION", M.IBIS_OUTSIDE_SECTION.format(keyword="[Pin]",
+                                                            section="[Component]"))
+def _(env):
+    return _ibis_fails(env, "[IBIS Ver] 5.0\n[Pin]\n1 A io\n")
+
+
+@case("IBIS_EMPTY_TABLE")
+def _(env):
+    return _ibis_fails(env, _ibis(lambda t: t.replace(
+        "[GND Clamp]\n-1.0  -0.1  NA  NA\n 0.0   0.0  NA  NA\n", "[GND Clamp]\n")))
+
+
+@case("IBIS_BAD_COMMENT_CHAR")
+def _(env):
+    return _ibis_fails(env, "[Comment Char] 7_char\n")
+
+
+@case("IBIS_UNKNOWN_MODEL")
+def _(env):
+    return _ibis_fails(env, _ibis(lambda t: t.replace("1      SDA          io33",
+                                                      "1      SDA          nosuch")))
+
+
+
 @pytest.mark.parametrize(("name", "expected", "trigger"), CASES)
 def test_message(name, expected, trigger, tmp_path, monkeypatch, capsys):
     text = getattr(M, name)
