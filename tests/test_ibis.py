@@ -242,3 +242,53 @@ def test_malformed_files(what, breaks, keyword, needle, tmp_path):
     assert err.file == str(path) and err.field == keyword
     assert err.line == (_line_of(text, needle) if needle else 1)
     assert str(path) in err.message
+
+
+# ---------------------------------------------------------------- derived values
+def _derive(**kw):
+    from pinlib.library.ibisderive import derive_pin
+    f = ibis.parse_ibis(ibis_text(**{k: v for k, v in kw.items() if k == "model_type"}))
+    return derive_pin(f, "DEMO-IO", kw.get("pin", "SDA"), drive=kw.get("drive", "push-pull"),
+                      i_ol=kw.get("i_ol"))
+
+
+def test_c_in_is_c_comp_plus_c_pin():
+    got = _derive()["c_in"]
+    # derived from C_comp max 3.5 pF + C_pin 0.4 pF, both written by ibis_text
+    assert got.value == pytest.approx(3.9e-12, rel=1e-12)
+    assert got.typ == pytest.approx(3.4e-12, rel=1e-12)
+    assert got.source == "invented.ibs rev 1.2, [Model] io33, C_comp max"
+
+
+def test_c_in_takes_the_package_where_the_pin_says_na():
+    # derived from C_comp max 3.5 pF + C_pkg max 0.6 pF (pin SCL gives NA)
+    assert _derive(pin="SCL")["c_in"].value == pytest.approx(4.1e-12, rel=1e-12)
+
+
+def test_thresholds_are_vinl_and_vinh():
+    got = _derive()
+    # derived from Vinl = 0.8V, Vinh = 2.0V as written by ibis_text
+    assert got["v_il"].value == pytest.approx(0.8) and got["v_ih"].value == pytest.approx(2.0)
+    assert got["v_il"].source.endswith("[Model] io33, Vinl")
+
+
+def test_r_out_recovers_the_tables_resistance():
+    got = _derive()["r_out"]
+    # derived from the tables: pull-up 40 ohm typ, its min column 1.2 x 40 = 48 ohm, the
+    # weakest of both tables and corners; typ the larger typ (40 ohm)
+    assert got.value == pytest.approx(1.2 * R_UP, rel=1e-5)
+    assert got.typ == pytest.approx(R_UP, rel=1e-5)
+    assert got.source == "invented.ibs rev 1.2, [Model] io33, [Pullup] min"
+
+
+def test_open_drain_v_ol_at_i_ol():
+    got = _derive(model_type="Open_drain", drive="open-drain", i_ol=3e-3)["v_ol"]
+    # derived from Ohm's law on the linear pull-down table: 3 mA x (1.2 x 25 ohm) = 90 mV
+    assert got.value == pytest.approx(3e-3 * 1.2 * R_DOWN, rel=1e-5)
+    assert got.typ == pytest.approx(3e-3 * R_DOWN, rel=1e-5)
+    assert "[Pulldown] min" in got.source
+
+
+def test_an_input_model_has_no_drive_values():
+    got = _derive(model_type="Input")
+    assert set(got) == {"c_in", "v_il", "v_ih"}

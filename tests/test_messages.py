@@ -2470,6 +2470,39 @@ def _(env):
 
 
 
+@case("IBIS_UNKNOWN_PIN")
+def _(env):
+    from pinlib.library.ibis import parse_ibis
+    from pinlib.library.ibisderive import derive_pin
+    from tests.test_ibis import ibis_text
+    return _fails(lambda e: derive_pin(parse_ibis(ibis_text()), "DEMO-IO", "99"), env)
+
+
+@case("IBIS_CURRENT_OUTSIDE_TABLE")
+def _(env):
+    from pinlib.library.ibis import parse_ibis
+    from pinlib.library.ibisderive import derive_pin
+    from tests.test_ibis import ibis_text
+    return _fails(lambda e: derive_pin(parse_ibis(ibis_text()), "DEMO-IO", "SDA",
+                                       drive="open-drain", i_ol=5.0), env)
+
+
+@case("IBIS_NO_SLOPE")
+def _(env):
+    from pinlib.library.ibis import parse_ibis
+    from pinlib.library.ibisderive import derive_pin
+    from tests.test_ibis import ibis_text
+    text = ibis_text(model_type="Output").replace("[Pullup]\n", "[Pullup]\n5.0 -1 NA NA\n")
+    f = parse_ibis(text)
+    # keep only rows far from the rail in both tables
+    for key, table in f.models["io33"].tables.items():
+        keep = [i for i, x in enumerate(table.x) if x > 1.0]
+        f.models["io33"].tables[key] = type(table)(
+            table.keyword, table.line, *([col[i] for i in keep]
+                                         for col in (table.x, table.typ, table.min, table.max)))
+    return _fails(lambda e: derive_pin(f, "DEMO-IO", "SDA"), env)
+
+
 @pytest.mark.parametrize(("name", "expected", "trigger"), CASES)
 def test_message(name, expected, trigger, tmp_path, monkeypatch, capsys):
     text = getattr(M, name)

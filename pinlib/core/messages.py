@@ -443,6 +443,9 @@ IBIS_OUTSIDE_SECTION = "{keyword} outside a {section}"
 IBIS_EMPTY_TABLE = "a table without rows"
 IBIS_BAD_COMMENT_CHAR = "not a comment character IBIS allows"
 IBIS_UNKNOWN_MODEL = "the pin names a model the file does not hold"
+IBIS_UNKNOWN_PIN = "no such pin in the component"
+IBIS_CURRENT_OUTSIDE_TABLE = "the table does not reach this current"
+IBIS_NO_SLOPE = "too few rows near the rail to take the table's slope"
 
 #: The modules whose raise sites, warnings and report sentences take their texts from here.
 MODULES = (
@@ -456,6 +459,7 @@ MODULES = (
     "pinlib.library.plausible",
     "pinlib.library.record",
     "pinlib.library.ibis",
+    "pinlib.library.ibisderive",
     "pinlib.model.design",
     "pinlib.cli.commands.parts",
     "pinlib.cli.commands.swap",
