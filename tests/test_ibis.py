@@ -8,6 +8,7 @@ refused with the line and the keyword.
 
 from __future__ import annotations
 
+import json
 import time
 
 import pytest
@@ -261,8 +262,10 @@ def test_c_in_is_c_comp_plus_c_pin():
 
 
 def test_c_in_takes_the_package_where_the_pin_says_na():
-    # derived from C_comp max 3.5 pF + C_pkg max 0.6 pF (pin SCL gives NA)
-    assert _derive(pin="SCL")["c_in"].value == pytest.approx(4.1e-12, rel=1e-12)
+    # derived from C_comp max 3.5 pF + C_pkg max 0.6 pF (pin SCL gives NA); typ 3 + 0.5 pF
+    got = _derive(pin="SCL")["c_in"]
+    assert got.value == pytest.approx(4.1e-12, rel=1e-12)
+    assert got.typ == pytest.approx(3.5e-12, rel=1e-12)
 
 
 def test_thresholds_are_vinl_and_vinh():
@@ -292,3 +295,88 @@ def test_open_drain_v_ol_at_i_ol():
 def test_an_input_model_has_no_drive_values():
     got = _derive(model_type="Input")
     assert set(got) == {"c_in", "v_il", "v_ih"}
+
+
+# ---------------------------------------------------------------- pinlib parts import
+DESIGN = """\
+format = "pinlib.design/1"
+title = "an invented board with an imported part"
+
+[board.geometry.g]
+kind = "microstrip"
+width = "0.2 mm"
+height = "0.18 mm"
+er = 4.2
+
+[[bus]]
+id = "b"
+protocol = "i2c"
+supply = "3.3 V"
+trace = { length = "5 cm", geometry = "g" }
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "demo-io" },
+]
+"""
+
+
+def _import(tmp_path, capsys, *extra, model_type="Open_drain"):
+    from pinlib.cli import main
+    ibs = tmp_path / "invented.ibs"
+    ibs.write_text(ibis_text(model_type=model_type))
+    code = main(["parts", "import", str(ibs), *extra])
+    out = capsys.readouterr()
+    return code, out.out, out.err
+
+
+def test_import_lists_components_pins_and_models(tmp_path, capsys):
+    code, out, _ = _import(tmp_path, capsys)
+    assert code == 0
+    assert "component DEMO-IO (Invented)" in out
+    assert "SDA" in out and "model io33: Open_drain, 3.3 V" in out
+
+
+def test_imported_part_loads_and_is_checked_in_a_design(tmp_path, capsys):
+    from pinlib.cli import main
+    from pinlib.library.loader import load_library
+    parts = tmp_path / "parts"
+    code, out, err = _import(tmp_path, capsys, "--component", "DEMO-IO", "--pin", "SDA=i2c-sda",
+                             "--pin", "SCL=i2c-scl", "--id", "demo-io", "--into", str(parts),
+                             "--i-ol", "3mA", "--category", "memory")
+    assert code == 0, err
+    part = load_library([parts]).get("demo-io")
+    sda = part.pins["sda"]
+    # derived from the invented file: C_comp max 3.5 pF + C_pin 0.4 pF; 3 mA x 30 ohm
+    assert sda.c_in.value == pytest.approx(3.9e-12, rel=1e-5) and sda.c_in.basis == "ibis"
+    assert sda.v_ol.at(3.3) == pytest.approx(0.09, rel=1e-5)
+    assert sda.drive == "open-drain" and "[Model] io33" in sda.v_ol.source
+    assert part.provenance.basis == "ibis"
+    cb = {}
+    for name, part_id in (("imported", "demo-io"), ("class", "eeprom-i2c")):
+        design = tmp_path / f"{name}.toml"
+        design.write_text(DESIGN.replace('part = "demo-io"', f'part = "{part_id}"'))
+        code = main(["check", str(design), "--library", str(parts), "--json"])
+        out = capsys.readouterr().out
+        assert code in (0, 1), out
+        cb[name] = json.loads(out)["buses"][0]["figures"]["bus_capacitance"]["value"]
+    # derived from the two parts' SDA c_in: 8 pF (eeprom-i2c class) - 3.9 pF (imported)
+    assert cb["class"] - cb["imported"] == pytest.approx(8e-12 - 3.9e-12, rel=1e-6)
+
+
+def test_import_of_a_push_pull_pin_writes_r_out(tmp_path, capsys):
+    from pinlib.library.loader import load_library
+    parts = tmp_path / "parts"
+    code, _, err = _import(tmp_path, capsys, "--component", "DEMO-IO", "--pin", "SDA=gpio",
+                           "--id", "demo-pp", "--into", str(parts), model_type="I/O")
+    assert code == 0, err
+    pin = load_library([parts]).get("demo-pp").pins["sda"]
+    # derived from the pull-up table's min column: 1.2 x 40 ohm
+    assert pin.drive == "push-pull" and pin.r_out.value == pytest.approx(48.0, rel=1e-5)
+
+
+def test_import_refuses_the_builtin_library(tmp_path, capsys):
+    from pinlib.library import loader
+    code, _, err = _import(tmp_path, capsys, "--component", "DEMO-IO", "--pin", "SDA=i2c-sda",
+                           "--id", "demo-x", "--into", str(loader.BUILTIN_DIR))
+    assert code == 2 and "team folder" in err
+    assert not (loader.BUILTIN_DIR / "demo-x.toml").exists()

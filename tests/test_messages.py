@@ -2503,6 +2503,22 @@ def _(env):
     return _fails(lambda e: derive_pin(f, "DEMO-IO", "SDA"), env)
 
 
+@case("IBIS_UNKNOWN_COMPONENT")
+def _(env):
+    from tests.test_ibis import ibis_text
+    ibs = env.write("m.ibs", ibis_text())
+    return env.cli("parts", "import", str(ibs), "--component", "NOPE", "--pin", "SDA=i2c-sda",
+                   "--id", "x", "--into", str(env.tmp / "parts"))
+
+
+@case("IBIS_PIN_MAPPING")
+def _(env):
+    from tests.test_ibis import ibis_text
+    ibs = env.write("m.ibs", ibis_text())
+    return env.cli("parts", "import", str(ibs), "--component", "DEMO-IO", "--pin", "SDA",
+                   "--id", "x", "--into", str(env.tmp / "parts"))
+
+
 @pytest.mark.parametrize(("name", "expected", "trigger"), CASES)
 def test_message(name, expected, trigger, tmp_path, monkeypatch, capsys):
     text = getattr(M, name)

@@ -444,6 +444,8 @@ IBIS_EMPTY_TABLE = "a table without rows"
 IBIS_BAD_COMMENT_CHAR = "not a comment character IBIS allows"
 IBIS_UNKNOWN_MODEL = "the pin names a model the file does not hold"
 IBIS_UNKNOWN_PIN = "no such pin in the component"
+IBIS_UNKNOWN_COMPONENT = "no such component in the file"
+IBIS_PIN_MAPPING = "not a pin mapping"
 IBIS_CURRENT_OUTSIDE_TABLE = "the table does not reach this current"
 IBIS_NO_SLOPE = "too few rows near the rail to take the table's slope"
 
@@ -460,6 +462,8 @@ MODULES = (
     "pinlib.library.record",
     "pinlib.library.ibis",
     "pinlib.library.ibisderive",
+    "pinlib.library.ibisimport",
+    "pinlib.cli.commands.partsimport",
     "pinlib.model.design",
     "pinlib.cli.commands.parts",
     "pinlib.cli.commands.swap",

@@ -69,15 +69,16 @@ def c_in(ibis: IbisFile, comp: Component, pin: Pin, model: Model) -> Derived:
     cc = model.params["c_comp"]
     comp_c, corner = _largest((cc.typ, cc.min, cc.max))
     if pin.c_pin is not None:
-        pin_c, what = pin.c_pin, f"C_pin of pin {pin.name}"
+        pin_c, pin_typ, what = pin.c_pin, pin.c_pin, f"C_pin of pin {pin.name}"
     elif "c_pkg" in comp.package:
         pkg = comp.package["c_pkg"]
         pin_c, _ = _largest((pkg.typ, pkg.min, pkg.max))
+        pin_typ = pkg.typ
         what = "the largest C_pkg of [Package]"
     else:
-        pin_c, what = 0.0, "no package capacitance given"
+        pin_c, pin_typ, what = 0.0, 0.0, "no package capacitance given"
     return Derived("c_in", comp_c + pin_c, "F", _source(ibis, model, f"C_comp {corner}"),
-                   f"C_comp ({corner}) + {what}", typ=cc.typ + (pin.c_pin or 0.0))
+                   f"C_comp ({corner}) + {what}", typ=cc.typ + pin_typ)
 
 
 def thresholds(ibis: IbisFile, model: Model) -> list[Derived]:
@@ -156,7 +157,7 @@ def r_out(ibis: IbisFile, model: Model) -> Derived:
         raise _error(ibis, M.IBIS_NO_SLOPE, table.line, table.keyword, None,
                      f"two rows or more between 0 V and {NEAR_RAIL:g} of the supply")
     r, corner = max(found)
-    return Derived("r_out", r, "ohm", _source(ibis, model, corner),
+    return Derived("r_out", r, "Ω", _source(ibis, model, corner),
                    f"slope dV/dI of the table rows within {NEAR_RAIL:.0%} of the supply "
                    "from the rail (least squares through the origin), the largest of "
                    "the tables and corners", typ=max(typ) if typ else None)
