@@ -179,6 +179,18 @@ def test_large_file_is_read_in_bounded_time():
     assert time.perf_counter() - start < 10
 
 
+def test_a_long_bad_token_is_refused_at_once():
+    # common practice, no source: a 2 MB token that is almost a number fails in bounded time
+    start = time.perf_counter()
+    with pytest.raises(ValueError):
+        ibis.parse_number("1" * 2_000_000 + "-")
+    text = ibis_text().replace("Rref = 50", "Rref = " + "1" * 2_000_000 + "-")
+    with pytest.raises(LibraryError) as info:
+        ibis.parse_ibis(text)
+    assert info.value.field == "Rref" and len(info.value.message) < 400
+    assert time.perf_counter() - start < 5
+
+
 def test_too_large_a_file_is_refused(tmp_path):
     path = tmp_path / "big.ibs"
     path.write_text(ibis_text())

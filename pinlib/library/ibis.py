@@ -45,7 +45,10 @@ SCALE = {"T": 1e12, "G": 1e9, "M": 1e6, "k": 1e3, "m": 1e-3, "u": 1e-6, "n": 1e-
 #: The largest IBIS file read (vendors' files of many components reach a few MB).
 MAX_BYTES = 32 * 2**20
 
-_NUMBER = re.compile(r"([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)([TGMkmunpf]?)[A-Za-z]*")
+# Unambiguous (each character has one way to match), so a failing match backtracks
+# in linear time; tokens longer than _TOKEN_LIMIT are refused before it runs.
+_NUMBER = re.compile(r"([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)([TGMkmunpf]?)[A-Za-z]*")
+_TOKEN_LIMIT = 64
 _KEYWORD = re.compile(r"\[([^\]]{1,80})\]")
 _HEADER = ("ibis ver", "file name", "file rev", "date", "source", "notes", "disclaimer",
            "copyright", "comment char")
@@ -148,7 +151,8 @@ class IbisFile:
 # ---------------------------------------------------------------- numbers
 def parse_number(text: str) -> float:
     """A number in IBIS notation (``2.5pF``, ``-1.2e-3``, ``33k``); ValueError otherwise."""
-    m = _NUMBER.fullmatch(text.strip())
+    text = text.strip()
+    m = _NUMBER.fullmatch(text) if len(text) <= _TOKEN_LIMIT else None
     if m is None:
         raise ValueError(text)
     return float(m.group(1)) * SCALE.get(m.group(2), 1.0)
