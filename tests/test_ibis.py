@@ -304,6 +304,17 @@ def test_open_drain_v_ol_at_i_ol():
     assert "[Pulldown] min" in got.source
 
 
+def test_pullup_reference_stands_in_for_voltage_range():
+    from pinlib.library.ibisderive import derive_pin
+    text = ibis_text().replace("[Voltage Range] 3.3 3.0 3.6",
+                               "[Pullup Reference] 3.3 3.0 3.6\n[Pulldown Reference] 0 0 0")
+    f = ibis.parse_ibis(text)
+    m = f.models["io33"]
+    assert m.voltage_range is None and m.supply() == ibis.TypMinMax(3.3, 3.0, 3.6)
+    # derived from the pull-up table's min column, as with [Voltage Range]: 1.2 x 40 ohm
+    assert derive_pin(f, "DEMO-IO", "SDA")["r_out"].value == pytest.approx(48.0, rel=1e-5)
+
+
 def test_an_input_model_has_no_drive_values():
     got = _derive(model_type="Input")
     assert set(got) == {"c_in", "v_il", "v_ih"}

@@ -55,6 +55,8 @@ _HEADER = ("ibis ver", "file name", "file rev", "date", "source", "notes", "disc
 _TABLES = {"pullup": "pullup", "pulldown": "pulldown", "gnd clamp": "gnd_clamp",
            "power clamp": "power_clamp"}
 _WAVES = {"rising waveform": "rising", "falling waveform": "falling"}
+_REFERENCES = ("pullup reference", "pulldown reference", "power clamp reference",
+               "gnd clamp reference")
 _MODEL_PARAMS = ("model_type", "polarity", "enable", "vinl", "vinh", "vmeas", "cref", "rref",
                  "vref", "c_comp")
 
@@ -125,6 +127,9 @@ class Model:
     line: int
     params: dict[str, object] = field(default_factory=dict)
     voltage_range: TypMinMax | None = None
+    #: ``[Pullup Reference]``, ``[Pulldown Reference]``... by key ("pullup reference"),
+    #: which may stand in for ``[Voltage Range]``
+    references: dict[str, TypMinMax] = field(default_factory=dict)
     temperature_range: TypMinMax | None = None
     tables: dict[str, Table] = field(default_factory=dict)
     ramp: Ramp | None = None
@@ -133,6 +138,21 @@ class Model:
     @property
     def model_type(self) -> str:
         return str(self.params.get("model_type", ""))
+
+    def supply(self) -> TypMinMax | None:
+        """The supply its tables are counted from: ``[Voltage Range]``, else the
+        ``[Pullup Reference]`` less a ``[Pulldown Reference]`` (0 V when none)."""
+        if self.voltage_range is not None:
+            return self.voltage_range
+        up = self.references.get("pullup reference")
+        if up is None:
+            return None
+        down = self.references.get("pulldown reference", TypMinMax(0.0, 0.0, 0.0))
+
+        def less(a, b):
+            return None if a is None else a - (b or 0.0)
+        return TypMinMax(up.typ - (down.typ or 0.0), less(up.min, down.min),
+                         less(up.max, down.max))
 
 
 @dataclass
@@ -377,6 +397,8 @@ def _model_keyword(model: Model, sec: _Section, where: _Where) -> None:
     if sec.keyword in ("voltage range", "temperature range"):
         value = where.tmm(sec.arg.split(), sec.line, sec.name)
         setattr(model, sec.keyword.replace(" ", "_"), value)
+    elif sec.keyword in _REFERENCES:
+        model.references[sec.keyword] = where.tmm(sec.arg.split(), sec.line, sec.name)
     elif sec.keyword in _TABLES:
         model.tables[_TABLES[sec.keyword]] = _table(sec, where)
     elif sec.keyword == "ramp":
@@ -419,7 +441,7 @@ def _build(sections: list[_Section], where: _Where) -> IbisFile:
             _model_params(model, sec, where)
             models[sec.arg] = model
         elif key in ("voltage range", "temperature range", "ramp") or key in _TABLES \
-                or key in _WAVES:
+                or key in _WAVES or key in _REFERENCES:
             _model_keyword(_in_model(model, sec, where), sec, where)
     return IbisFile(where.path, header, components, selectors, models)
 
@@ -444,10 +466,10 @@ def _check(ibis: IbisFile, where: _Where) -> None:
                                   "a [Model] or [Model Selector] of the file, or POWER, "
                                   "GND, NC")
     for model in ibis.models.values():
-        if model.voltage_range is None and model.model_type.lower() not in ("terminator",):
+        if model.supply() is None and model.model_type.lower() not in ("terminator",):
             raise where.error(M.IBIS_MISSING_KEYWORD.format(keyword="[Voltage Range]"),
                               model.line, "[Model]", model.name,
-                              "[Voltage Range] in every [Model]")
+                              "[Voltage Range] (or [Pullup Reference]) in every [Model]")
 
 
 def parse_ibis(text: str, path: str = "<text>") -> IbisFile:

@@ -103,7 +103,7 @@ def _rows(table: Table, column, lo: float, hi: float):
 def sink_v_ol(ibis: IbisFile, model: Model, i_ol: float) -> Derived:
     """The ``[Pulldown]`` voltage at ``i_ol`` (A, into the pin), the weakest corner's."""
     table = _table(ibis, model, "pulldown")
-    vcc = model.voltage_range.typ
+    vcc = model.supply().typ
     found = []
     for corner, column in _columns(table).items():
         rows = _rows(table, column, 0.0, vcc)
@@ -140,7 +140,7 @@ def _slope(ibis: IbisFile, table: Table, column, vcc: float, sign: float) -> flo
 
 def r_out(ibis: IbisFile, model: Model) -> Derived:
     """The largest near-rail resistance of the pull-down and pull-up tables' corners."""
-    vcc = model.voltage_range.typ
+    vcc = model.supply().typ
     found, typ = [], []
     for key, sign in (("pulldown", 1.0), ("pullup", -1.0)):
         if key not in model.tables and found:

@@ -82,7 +82,7 @@ def part_text(ibis: IbisFile, component: str, pins: dict[str, str], new_id: str,
         if supply is None:
             model = _model_of(ibis, next(p for p in ibis.components[component].pins
                                          if pin in (p.name, p.signal)))
-            supply = (model, model.voltage_range)
+            supply = (model, model.supply())
         if "v_ol" in values:
             values["i_ol"] = Derived("i_ol", i_ol, "A", values["v_ol"].source,
                                      "the current v_ol was read at (--i-ol)")
@@ -99,7 +99,8 @@ def _supply_line(ibis, model, vr) -> str:
     lo = min(v for v in (vr.typ, vr.min, vr.max) if v is not None)
     hi = max(v for v in (vr.typ, vr.min, vr.max) if v is not None)
     name = ibis.header.get("file name", "") or Path(ibis.path).name
-    src = _toml_string(f"{name} rev {ibis.file_rev}, [Model] {model.name}, [Voltage Range]")
+    where = "[Voltage Range]" if model.voltage_range is not None else "[Pullup Reference]"
+    src = _toml_string(f"{name} rev {ibis.file_rev}, [Model] {model.name}, {where}")
     return (f"supply = {{ min = {{ value = {_toml_string(format_si(lo, 'V'))}, basis = \"ibis\", "
             f"source = {src} }}, max = {{ value = {_toml_string(format_si(hi, 'V'))}, "
             f"basis = \"ibis\", source = {src} }}, typ = {_toml_string(format_si(vr.typ, 'V'))} }}")
