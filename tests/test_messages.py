@@ -2417,6 +2417,115 @@ def _(env):
     return env.cli("workbench", _workbooks(env))
 
 
+# ---------------------------------------------------------------- library.ibis
+def _ibis_fails(env, text):
+    from pinlib.library.ibis import read_ibis
+    return _fails(lambda e: read_ibis(e.write("m.ibs", text)), env)
+
+
+def _ibis(breaks):
+    from tests.test_ibis import ibis_text
+    return breaks(ibis_text())
+
+
+@case("IBIS_NOT_A_NUMBER")
+def _(env):
+    return _ibis_fails(env, _ibis(lambda t: t.replace("Rref = 50", "Rref = fifty")))
+
+
+@case("IBIS_NA_NOT_ALLOWED")
+def _(env):
+    return _ibis_fails(env, _ibis(lambda t: t.replace("Vinl = 0.8V", "Vinl = NA")))
+
+
+@case("IBIS_WRONG_COLUMNS", M.IBIS_WRONG_COLUMNS.format(found=2, expected=3))
+def _(env):
+    return _ibis_fails(env, _ibis(lambda t: t.replace("R_pkg  0.2  0.1  0.3", "R_pkg 0.2 0.1")))
+
+
+@case("IBIS_MISSING_KEYWORD", M.IBIS_MISSING_KEYWORD.format(keyword="[Component]"))
+def _(env):
+    return _ibis_fails(env, "[IBIS Ver] 5.0\n[File Name] m.ibs\n[File Rev] 1\n")
+
+
+@case("IBIS_DATA_BEFORE_KEYWORD")
+def _(env):
+    return _ibis_fails(env, "stray words\n[IBIS Ver] 5.0\n")
+
+
+@case("IBIS_OUTSIDE_SECTION", M.IBIS_OUTSIDE_SECTION.format(keyword="[Pin]",
+                                                            section="[Component]"))
+def _(env):
+    return _ibis_fails(env, "[IBIS Ver] 5.0\n[Pin]\n1 A io\n")
+
+
+@case("IBIS_EMPTY_TABLE")
+def _(env):
+    return _ibis_fails(env, _ibis(lambda t: t.replace(
+        "[GND Clamp]\n-1.0  -0.1  NA  NA\n 0.0   0.0  NA  NA\n", "[GND Clamp]\n")))
+
+
+@case("IBIS_BAD_COMMENT_CHAR")
+def _(env):
+    return _ibis_fails(env, "[Comment Char] 7_char\n")
+
+
+@case("IBIS_UNKNOWN_MODEL")
+def _(env):
+    return _ibis_fails(env, _ibis(lambda t: t.replace("1      SDA          io33",
+                                                      "1      SDA          nosuch")))
+
+
+
+@case("IBIS_UNKNOWN_PIN")
+def _(env):
+    from pinlib.library.ibis import parse_ibis
+    from pinlib.library.ibisderive import derive_pin
+    from tests.test_ibis import ibis_text
+    return _fails(lambda e: derive_pin(parse_ibis(ibis_text()), "DEMO-IO", "99"), env)
+
+
+@case("IBIS_CURRENT_OUTSIDE_TABLE")
+def _(env):
+    from pinlib.library.ibis import parse_ibis
+    from pinlib.library.ibisderive import derive_pin
+    from tests.test_ibis import ibis_text
+    return _fails(lambda e: derive_pin(parse_ibis(ibis_text()), "DEMO-IO", "SDA",
+                                       drive="open-drain", i_ol=5.0), env)
+
+
+@case("IBIS_NO_SLOPE")
+def _(env):
+    from pinlib.library.ibis import parse_ibis
+    from pinlib.library.ibisderive import derive_pin
+    from tests.test_ibis import ibis_text
+    text = ibis_text(model_type="Output").replace("[Pullup]\n", "[Pullup]\n5.0 -1 NA NA\n")
+    f = parse_ibis(text)
+    # keep only rows far from the rail in both tables
+    for key, table in f.models["io33"].tables.items():
+        keep = [i for i, x in enumerate(table.x) if x > 1.0]
+        f.models["io33"].tables[key] = type(table)(
+            table.keyword, table.line, *([col[i] for i in keep]
+                                         for col in (table.x, table.typ, table.min, table.max)))
+    return _fails(lambda e: derive_pin(f, "DEMO-IO", "SDA"), env)
+
+
+@case("IBIS_UNKNOWN_COMPONENT")
+def _(env):
+    from tests.test_ibis import ibis_text
+    ibs = env.write("m.ibs", ibis_text())
+    return env.cli("parts", "import", str(ibs), "--component", "NOPE", "--pin", "SDA=i2c-sda",
+                   "--id", "x", "--into", str(env.tmp / "parts"))
+
+
+@case("IBIS_PIN_MAPPING")
+def _(env):
+    from tests.test_ibis import ibis_text
+    ibs = env.write("m.ibs", ibis_text())
+    return env.cli("parts", "import", str(ibs), "--component", "DEMO-IO", "--pin", "SDA",
+                   "--id", "x", "--into", str(env.tmp / "parts"))
+
+
 @pytest.mark.parametrize(("name", "expected", "trigger"), CASES)
 def test_message(name, expected, trigger, tmp_path, monkeypatch, capsys):
     text = getattr(M, name)

@@ -435,6 +435,22 @@ SERVER_STOPPED = "the web server stopped (exit status {code})"
 SERVER_DID_NOT_ANSWER = "the web server did not answer within {seconds:g} s"
 SERVER_OUTPUT_HINT = "its own messages are above"
 
+# ---------------------------------------------------------------- IBIS files (library.ibis)
+IBIS_NOT_A_NUMBER = "not a number in IBIS notation"
+IBIS_NA_NOT_ALLOWED = "NA where a value is needed"
+IBIS_WRONG_COLUMNS = "{found} columns where {expected} belong"
+IBIS_MISSING_KEYWORD = "the file has no {keyword}"
+IBIS_DATA_BEFORE_KEYWORD = "data before any keyword"
+IBIS_OUTSIDE_SECTION = "{keyword} outside a {section}"
+IBIS_EMPTY_TABLE = "a table without rows"
+IBIS_BAD_COMMENT_CHAR = "not a comment character IBIS allows"
+IBIS_UNKNOWN_MODEL = "the pin names a model the file does not hold"
+IBIS_UNKNOWN_PIN = "no such pin in the component"
+IBIS_UNKNOWN_COMPONENT = "no such component in the file"
+IBIS_PIN_MAPPING = "not a pin mapping"
+IBIS_CURRENT_OUTSIDE_TABLE = "the table does not reach this current"
+IBIS_NO_SLOPE = "too few rows near the rail to take the table's slope"
+
 #: The modules whose raise sites, warnings and report sentences take their texts from here.
 MODULES = (
     "pinlib.core.tomlfile",
@@ -446,6 +462,10 @@ MODULES = (
     "pinlib.library.folders",
     "pinlib.library.plausible",
     "pinlib.library.record",
+    "pinlib.library.ibis",
+    "pinlib.library.ibisderive",
+    "pinlib.library.ibisimport",
+    "pinlib.cli.commands.partsimport",
     "pinlib.model.design",
     "pinlib.cli.commands.parts",
     "pinlib.cli.commands.swap",

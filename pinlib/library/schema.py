@@ -178,7 +178,7 @@ class Supply(_Model):
 
 
 class Provenance(_Model):
-    basis: Literal["generic", "datasheet", "measured", "estimate"] = "generic"
+    basis: Literal["generic", "datasheet", "measured", "estimate", "ibis"] = "generic"
     source: str = ""
     recorded: _dt.date | None = None
     by: str | None = None

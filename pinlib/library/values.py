@@ -19,8 +19,9 @@ from pinlib.core.quantity import Threshold, format_si, parse, parse_threshold
 
 __all__ = ["BASES", "Sourced", "sourced_parser", "threshold_parser"]
 
-#: How a value was obtained.
-BASES = ("generic", "datasheet", "measured", "estimate", "derived")
+#: How a value was obtained ("ibis": read or derived by arithmetic from an IBIS file;
+#: "derived" is set by pinlib itself and stays last).
+BASES = ("generic", "datasheet", "measured", "estimate", "ibis", "derived")
 
 _TABLE_KEYS = {"value", "basis", "source", "typ"}
 

@@ -12,12 +12,13 @@ import os
 import sys
 from pathlib import Path
 
+from pinlib.cli.commands import partsimport
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 
 __all__ = ["add_parser", "run"]
 
-HELP = "list, show, create, record into and check library parts"
+HELP = "list, show, create, record into, import from IBIS and check library parts"
 
 EPILOG = f"""\
 examples:
@@ -70,6 +71,7 @@ A negative VALUE goes after '--':  pinlib parts record X -- sda.v_il "-0.3 V" --
 The file keeps its comments and layout; a value that does not validate is refused and
 the file is left as it was. Built-in parts are never written: make a team part first.
 """,
+    "import": partsimport.EXAMPLES,
     "check": """\
 examples:
   pinlib parts check               (the whole merged library)
@@ -137,6 +139,10 @@ def add_parser(subparsers) -> None:
     p.add_argument("--basis", choices=["datasheet", "measured", "estimate"],
                    default="datasheet", help="how the value was obtained (default: datasheet)")
     p.add_argument("--typ", help="a typical value to keep beside the limit")
+
+    p = action("import", "list an IBIS file, or write a team part from one of its components",
+               _run_import)
+    partsimport.add_arguments(p)
 
     p = action("check", "check part files and report every problem", _run_check)
     p.add_argument("folder", metavar="FOLDER", nargs="?",
@@ -500,6 +506,10 @@ def _run_record(args) -> int:
           f"in {_rel(path)}")
     _warn_implausible(_load(args), args.id, ".".join(keys))
     return 0
+
+
+def _run_import(args) -> int:
+    return partsimport.run_import(args, _load, _default_folder)
 
 
 def _warn_implausible(lib, pid, field=None) -> list:

@@ -1,0 +1,89 @@
+"""``pinlib parts import``: list an IBIS file's components, pins and models, or write a
+team part from one component (:mod:`pinlib.library.ibisimport`)."""
+
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
+
+__all__ = ["EXAMPLES", "add_arguments", "run_import"]
+
+EXAMPLES = """\
+examples:
+  pinlib parts import buffer.ibs                  (list components, pins and models)
+  pinlib parts import buffer.ibs --component DEMO-IO --pin SDA=i2c-sda --pin SCL=i2c-scl \\
+      --id demo-io --into parts --i-ol 3mA
+
+--pin maps an IBIS pin (its name or signal name) to a pin function; each value written
+carries basis "ibis" and names the file, its revision, the [Model] and the corner used.
+Built-in parts are never written.
+"""
+
+
+def add_arguments(p) -> None:
+    p.add_argument("file", metavar="FILE.ibs", help="the IBIS file")
+    p.add_argument("--component", help="the [Component] to import")
+    p.add_argument("--pin", action="append", default=[], metavar="PIN=FUNCTION",
+                   help="map an IBIS pin or signal to a pin function (repeatable)")
+    p.add_argument("--id", dest="part_id", metavar="ID", help="the new part's id")
+    p.add_argument("--into", metavar="FOLDER", help="the team library folder to write into")
+    p.add_argument("--category", default="logic", help="the part's category (default: logic)")
+    p.add_argument("--extends", metavar="CLASS", help="a class the part extends")
+    p.add_argument("--i-ol", dest="i_ol", metavar="CURRENT",
+                   help="the sink current at which an open-drain pin's v_ol is read, e.g. 3mA")
+
+
+def _mapping(items) -> dict[str, str]:
+    out = {}
+    for item in items:
+        pin, eq, function = item.partition("=")
+        if not eq or not pin.strip() or not function.strip():
+            raise InputError(M.IBIS_PIN_MAPPING, field="--pin", value=item,
+                             expected="PIN=FUNCTION, e.g. SDA=i2c-sda")
+        out[pin.strip()] = function.strip()
+    return out
+
+
+def _listing(ibis) -> None:
+    print(f"{ibis.path}: IBIS {ibis.header.get('ibis ver', '?')}, "
+          f"file rev {ibis.file_rev or '?'}")
+    for comp in ibis.components.values():
+        print(f"component {comp.name}" + (f" ({comp.manufacturer})" if comp.manufacturer else ""))
+        for pin in comp.pins:
+            print(f"  pin {pin.name:<6} {pin.signal:<16} {pin.model}")
+    for name, choices in ibis.selectors.items():
+        print(f"model selector {name}: " + ", ".join(m for m, _ in choices))
+    for model in ibis.models.values():
+        vr = model.voltage_range
+        print(f"model {model.name}: {model.model_type}"
+              + (f", {vr.typ:g} V" if vr is not None else ""))
+
+
+def run_import(args, load_library, default_folder) -> int:
+    from pinlib.core.quantity import parse
+    from pinlib.library.ibis import read_ibis
+    from pinlib.library.ibisimport import import_part
+
+    ibis = read_ibis(args.file)
+    if args.component is None:
+        _listing(ibis)
+        return 0
+    pins = _mapping(args.pin)
+    if not pins or not args.part_id:
+        raise InputError(M.IBIS_PIN_MAPPING, field="--pin" if not pins else "--id",
+                         expected="--component NAME with --pin PIN=FUNCTION (one or more) "
+                                  "and --id ID")
+    i_ol = None if args.i_ol is None else parse(args.i_ol, "A", field="--i-ol")
+    folder = Path(args.into) if args.into else default_folder(args)
+    lib = load_library(args)
+    path = import_part(lib, ibis, args.component, pins, args.part_id, folder,
+                       category=args.category, extends=args.extends, i_ol=i_ol)
+    print(f"created {path} from [Component] {args.component} of {args.file}")
+    known = [f.resolve() for f in lib.folders]
+    if folder.resolve() not in known:
+        print(f"note: {folder} is not a library folder yet: pass --library {folder} or add "
+              "it to PINLIB_LIBRARY", file=sys.stderr)
+    return 0

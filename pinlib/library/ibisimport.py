@@ -1,0 +1,139 @@
+"""A team part file written from one component of an IBIS file.
+
+Each pin the user maps to a function gets the values :mod:`pinlib.library.ibisderive`
+works out, every one with ``basis = "ibis"`` and a source naming the file, its revision,
+the ``[Model]`` and the corner used.  The part's supply is the ``[Voltage Range]`` of the
+first mapped pin's model.  The file is written like ``pinlib parts new``: never into the
+built-in library, validated (through its ``extends`` chain) before anything is written,
+under :func:`pinlib.core.tomlfile.file_lock`, by :func:`pinlib.core.tomlfile.atomic_write`.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+from pathlib import Path
+
+from pinlib.core import messages as M
+from pinlib.core.errors import LibraryError, WriteError
+from pinlib.core.protocols import PIN_FUNCTIONS, PROTOCOLS
+from pinlib.core.quantity import format_si
+from pinlib.core.tomlfile import atomic_write, file_lock
+from pinlib.library import loader
+from pinlib.library.ibis import IbisFile
+from pinlib.library.ibisderive import Derived, _model_of, derive_pin
+from pinlib.library.record import _check_id, _refuse_builtin, _toml_string, _validate
+from pinlib.library.schema import CATEGORIES, FORMAT
+
+__all__ = ["OPEN_DRAIN_FUNCTIONS", "part_text", "import_part"]
+
+#: Pin functions of open-drain buses: a driving model serves them as an open-drain sink.
+OPEN_DRAIN_FUNCTIONS = tuple(fn for p in PROTOCOLS.values() if p.open_drain
+                             for fn in p.functions)
+
+_ORDER = ("c_in", "v_il", "v_ih", "v_ol", "i_ol", "r_out")
+
+
+def _value(d: Derived) -> str:
+    typ = f", typ = {_toml_string(format_si(d.typ, d.unit, 6))}" if d.typ is not None else ""
+    return (f"{{ value = {_toml_string(format_si(d.value, d.unit, 6))}{typ}, basis = \"ibis\", "
+            f"source = {_toml_string(d.source + ' (' + d.method + ')')} }}")
+
+
+def _drive(ibis: IbisFile, component: str, pin: str, function: str) -> str:
+    comp = ibis.components[component]
+    entry = next((p for p in comp.pins if pin in (p.name, p.signal)), None)
+    if entry is None:
+        return "input"  # derive_pin names the unknown pin
+    kind = _model_of(ibis, entry).model_type.lower()
+    if kind.startswith("input") or kind == "terminator":
+        return "input"
+    return "open-drain" if function in OPEN_DRAIN_FUNCTIONS or "open" in kind else "push-pull"
+
+
+def part_text(ibis: IbisFile, component: str, pins: dict[str, str], new_id: str, *,
+              category: str = "logic", extends: str | None = None,
+              i_ol: float | None = None) -> str:
+    """The TOML text of the part: ``pins`` maps an IBIS pin (name or signal) to a function."""
+    if component not in ibis.components:
+        raise LibraryError(M.IBIS_UNKNOWN_COMPONENT, file=ibis.path, field="--component",
+                           value=component, expected="one of " + ", ".join(ibis.components))
+    if category not in CATEGORIES:
+        raise LibraryError(M.NOT_ALLOWED_VALUE, field="--category", value=category,
+                           expected="one of " + ", ".join(CATEGORIES))
+    name = ibis.header.get("file name", "") or Path(ibis.path).name
+    source = f"{name} rev {ibis.file_rev}, [Component] {component}"
+    lines = [f"# {component}, imported from the IBIS file {name} (rev {ibis.file_rev}).",
+             "# Every value was read or derived from the file; its source names the",
+             "# [Model] and the corner used.",
+             f"format = {_toml_string(FORMAT)}", f"id = {_toml_string(new_id)}",
+             f"title = {_toml_string(component + ' (from IBIS)')}",
+             f"category = {_toml_string(category)}"]
+    if extends:
+        lines.append(f"extends = {_toml_string(extends)}")
+    lines.append(f"provenance = {{ basis = \"ibis\", source = {_toml_string(source)}, "
+                 f"recorded = {_dt.date.today().isoformat()} }}")
+    body, supply = [], None
+    for pin, function in pins.items():
+        if function not in PIN_FUNCTIONS:
+            raise LibraryError(M.NOT_ALLOWED_VALUE, field="--pin", value=f"{pin}={function}",
+                               expected="a pin function: " + ", ".join(PIN_FUNCTIONS))
+        drive = _drive(ibis, component, pin, function)
+        values = derive_pin(ibis, component, pin, drive=drive, i_ol=i_ol)
+        if supply is None:
+            model = _model_of(ibis, next(p for p in ibis.components[component].pins
+                                         if pin in (p.name, p.signal)))
+            supply = (model, model.supply())
+        if "v_ol" in values:
+            values["i_ol"] = Derived("i_ol", i_ol, "A", values["v_ol"].source,
+                                     "the current v_ol was read at (--i-ol)")
+        key = function.split("-")[-1] if function != "gpio" else pin.lower()
+        body += ["", f"[pins.{_toml_key(key)}]", f"function = {_toml_string(function)}",
+                 f"drive = {_toml_string(drive)}"]
+        body += [f"{f} = {_value(values[f])}" for f in _ORDER if f in values]
+    model, vr = supply
+    lines.append(_supply_line(ibis, model, vr))
+    return "\n".join(lines + body) + "\n"
+
+
+def _supply_line(ibis, model, vr) -> str:
+    lo = min(v for v in (vr.typ, vr.min, vr.max) if v is not None)
+    hi = max(v for v in (vr.typ, vr.min, vr.max) if v is not None)
+    name = ibis.header.get("file name", "") or Path(ibis.path).name
+    where = "[Voltage Range]" if model.voltage_range is not None else "[Pullup Reference]"
+    src = _toml_string(f"{name} rev {ibis.file_rev}, [Model] {model.name}, {where}")
+    return (f"supply = {{ min = {{ value = {_toml_string(format_si(lo, 'V'))}, basis = \"ibis\", "
+            f"source = {src} }}, max = {{ value = {_toml_string(format_si(hi, 'V'))}, "
+            f"basis = \"ibis\", source = {src} }}, typ = {_toml_string(format_si(vr.typ, 'V'))} }}")
+
+
+def _toml_key(key: str) -> str:
+    return key if key.replace("-", "").replace("_", "").isalnum() else _toml_string(key)
+
+
+def import_part(library: loader.Library, ibis: IbisFile, component: str,
+                pins: dict[str, str], new_id: str, into_folder: str | Path, **kw) -> Path:
+    """Write ``<into_folder>/<new_id>.toml`` from ``component`` of ``ibis``; the path."""
+    _check_id(new_id)
+    if new_id in library.files:
+        raise LibraryError(M.PART_ID_EXISTS, field="id", value=new_id,
+                           file=str(library.files[new_id].path),
+                           hint="choose another id with --id")
+    folder = Path(into_folder)
+    _refuse_builtin(folder, "an imported part belongs in a team folder",
+                    "name a team library folder with --into")
+    text = part_text(ibis, component, pins, new_id, **kw)
+    if folder.exists() and not folder.is_dir():
+        raise WriteError(M.NOT_A_FOLDER, file=str(folder))
+    try:
+        folder.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise WriteError(M.CANNOT_CREATE_FOLDER.format(reason=exc.strerror),
+                         file=str(folder)) from None
+    target = folder / f"{new_id}.toml"
+    with file_lock(target):
+        if target.exists():
+            raise LibraryError(M.FILE_EXISTS, file=str(target),
+                               hint="choose another id or folder")
+        _validate(library, new_id, target, text)
+        atomic_write(target, text)
+    return target
