@@ -272,3 +272,14 @@ def test_new_writes_any_title_and_reference_as_valid_toml(tmp_path):
     design = load_design(path)
     assert design.title == title
     assert {d.ref for d in design.buses[0].devices} == {'U"1', "U2"}
+
+
+def test_many_designs_fit_the_width(tmp_path, capsys, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    _board(tmp_path, "a.toml")
+    _board(tmp_path, "b.toml")
+    monkeypatch.setenv("COLUMNS", "60")
+    main(["check", "a.toml", "b.toml", "--jobs", "1"])
+    lines = capsys.readouterr().out.splitlines()
+    assert all(len(line) <= 60 for line in lines)
+    assert lines[0].startswith("WARN  a.toml") and lines[1].startswith("WARN  b.toml")

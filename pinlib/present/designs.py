@@ -30,20 +30,28 @@ def _snapshot_lines(s) -> list[str]:
     return out
 
 
-def format_many(summaries) -> str:
-    """Every design's line (and snapshot changes), then the counts of designs."""
+def format_many(summaries, cols: int | None = None) -> str:
+    """Every design's line (and snapshot changes), then the counts of designs; ``cols``:
+    characters per line (None: no limit), a design's line cut to it (its title last, so
+    the status, path and counts stay whole) and the closing line wrapped."""
+    import textwrap
+
     width = max(len(s.path) for s in summaries)
     out = []
     for s in summaries:
-        out.append(summary_line(s, width).rstrip())
+        line = summary_line(s, width).rstrip()
+        if cols is not None and len(line) > cols:
+            line = line[:cols - 1].rstrip() + "…"
+        out.append(line)
         out += _snapshot_lines(s)
     counts = {k: sum(1 for s in summaries if s.status == k)
               for k in ("pass", "warn", "fail", "error")}
     n = len(summaries)
     out.append("")
-    out.append(f"{n} design{'s' if n != 1 else ''}: {counts['pass']} pass, "
+    closing = (f"{n} design{'s' if n != 1 else ''}: {counts['pass']} pass, "
                f"{counts['warn']} warn, {counts['fail']} fail, {counts['error']} not checked; "
                "'pinlib check DESIGN' shows one in full")
+    out += textwrap.wrap(closing, cols, subsequent_indent="    ") if cols else [closing]
     return "\n".join(out) + "\n"
 
 

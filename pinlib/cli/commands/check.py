@@ -156,8 +156,9 @@ def _run_many(args, paths) -> int:
         sys.stdout.write("\n")
     else:
         from pinlib.present.designs import format_many
+        from pinlib.present.terminal import table_width
 
-        sys.stdout.write(format_many(summaries))
+        sys.stdout.write(format_many(summaries, table_width()))
     return max(s.exit_code for s in summaries)
 
 
