@@ -1392,9 +1392,9 @@ def _(env):
 
 # ---------------------------------------------------------------- engines: physics.pullup
 @case("MUST_BE_POSITIVE")
-def _(env):
-    from pinlib.physics.pullup import sink_resistance
-    return _fails(lambda e: sink_resistance(0.4, 0.0), env)
+def _(env):  # a resistance that may be infinite (no pull-up) must still be above 0
+    from pinlib.physics.pullup import parallel
+    return _fails(lambda e: parallel(0.0, 4.7e3), env)
 
 
 @case("NO_RESISTANCES")

@@ -26,8 +26,13 @@ def floats(value, name: str, *, problem: str = M.NOT_A_NUMBER,
 
 
 def positive(value, name: str, unit: str, *, allow_inf: bool = False,
-             problem: str = M.MUST_BE_FINITE_POSITIVE, convert=floats) -> np.ndarray:
-    """A float array of numbers above 0 (finite, unless ``allow_inf``: then +inf too). [unit]"""
+             problem: str | None = None, convert=floats) -> np.ndarray:
+    """A float array of numbers above 0 (finite, unless ``allow_inf``: then +inf too). [unit]
+
+    The problem text follows the domain: "finite and positive", or "positive" where +inf
+    is allowed."""
+    if problem is None:
+        problem = M.MUST_BE_POSITIVE if allow_inf else M.MUST_BE_FINITE_POSITIVE
     x = convert(value, name)
     ok = x > 0.0 if allow_inf else np.isfinite(x) & (x > 0.0)  # NaN > 0 is False
     if not ok.all():

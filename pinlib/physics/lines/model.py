@@ -10,6 +10,7 @@ import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.physics import guards
 
 __all__ = ["C0", "ETA0", "LineModel", "from_per_length"]
 
@@ -48,14 +49,7 @@ class LineModel(NamedTuple):
 
 
 def _as_float_array(value, name: str) -> np.ndarray:
-    try:
-        arr = np.asarray(value, dtype=float)
-    except (TypeError, ValueError):
-        raise InputError(
-            M.PARAMETER_NOT_A_NUMBER.format(name=name), field=name, value=value,
-            expected="a float [SI]",
-        ) from None
-    return arr
+    return guards.floats(value, name, problem=M.PARAMETER_NOT_A_NUMBER.format(name=name))
 
 
 def _first_bad(arr: np.ndarray, bad: np.ndarray) -> float:

@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import numpy as np
 
-from pinlib.core import messages as M
 from pinlib.physics import guards
 
 
@@ -13,7 +12,7 @@ def _arr(x, name: str) -> np.ndarray:
 
 
 def _positive(x, name: str, unit: str, *, allow_inf: bool = False) -> np.ndarray:
-    return guards.positive(x, name, unit, allow_inf=allow_inf, problem=M.MUST_BE_POSITIVE)
+    return guards.positive(x, name, unit, allow_inf=allow_inf)
 
 
 def _non_negative(x, name: str, unit: str) -> np.ndarray:
