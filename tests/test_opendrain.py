@@ -858,3 +858,37 @@ def test_level_figures_are_the_worst_extreme_and_checks_name_theirs(tmp_path):
     # at the rail's maximum (the highest low level)
     r_sink = 0.4 / 3e-3
     assert fig(res, "v_ol") == pytest.approx(3.63 * r_sink / (2200 + r_sink), rel=1e-9)
+
+
+# --------------------------------------------------------------------------- issue 12
+
+ROOT = Path(__file__).parent.parent
+_FIGURE_DESIGNS = (
+    (ROOT / "workbooks" / "designs" / "demo-board.toml", ()),
+    (TRANSLATOR_CABLE, ()),
+    (ROOT / "tests" / "golden" / "designs" / "whatif-buses.toml", (PARTS,)),
+    (ROOT / "tests" / "golden" / "designs" / "whatif-rc.toml", (PARTS,)),
+)
+
+
+@pytest.mark.parametrize("path, folders", _FIGURE_DESIGNS, ids=lambda x: getattr(x, "stem", ""))
+def test_batch_reports_every_figure_of_the_one_bus_result(path, folders):
+    from pinlib.engines.opendrain.batch import WorstCase, build
+
+    d = load_design(path, library_folders=folders)
+    buses = [b for b in d.buses if b.protocol in ("i2c", "smbus")]
+    assert buses
+    for bus in buses:
+        res = opendrain.evaluate_bus(bus, d)
+        batch = build(bus, d, WorstCase(1))
+        groups = res.segments or [res]
+        assert len(groups) == len(batch.segments)
+        for g, sb in zip(groups, batch.segments, strict=True):
+            assert set(sb.figures) == set(g.figures)
+            for name, fig in g.figures.items():
+                got = sb.figures[name]
+                if fig.value is None:
+                    assert got is None, name
+                    continue
+                # derived: the array path at the engine's corners equals the one-bus path
+                assert float(got[0]) == pytest.approx(fig.value, rel=1e-12, abs=0), name

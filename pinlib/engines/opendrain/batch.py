@@ -50,6 +50,7 @@ from pinlib.engines.opendrain.batchinputs import (
     structure,
 )
 from pinlib.engines.opendrain.bridges import gate_drive
+from pinlib.engines.opendrain.explain import _WORST
 from pinlib.engines.opendrain.inputs import (
     _offset_side,
     collect,
@@ -68,6 +69,7 @@ from pinlib.library.schema import Part
 from pinlib.model.design import Bus, Design
 from pinlib.model.result import STATUSES, max_margin, min_margin, status_codes
 from pinlib.physics import pullup as pu
+from pinlib.physics.rc import RISE_10_90
 
 __all__ = [
     "STATUS",
@@ -204,6 +206,15 @@ def _worst_max(x):
     return np.max(x, axis=1, keepdims=True)
 
 
+def _at_worst(x, margin):
+    """``x`` at the corner of the smallest ``margin`` (NaN counted as the worst), per
+    variant: the one-bus engine's figure for a check's value. [unit]"""
+    shape = np.broadcast_shapes(np.shape(x), np.shape(margin))
+    m = np.broadcast_to(margin, shape)
+    idx = np.argmin(np.where(np.isnan(m), -np.inf, m), axis=-1)[..., None]
+    return np.take_along_axis(np.broadcast_to(x, shape), idx, axis=-1)
+
+
 def _far(s: _Seg, segs: list[_Seg], links: list[_Link], signal: str):
     return [(link, segs[link.other].v, segs[link.other].r_lo(signal)) for link in links
             if link.kind == "mosfet"]
@@ -214,7 +225,9 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     warn = ctx.warn
     r_eff = s.r_eff(ln.signal)
     rp_lo, rp_hi = r_eff * (1 - tol), r_eff * (1 + tol)
-    figs[ln.signal] = f = {"bus_capacitance": ln.cb, "pullup": r_eff}
+    figs[ln.signal] = f = {"bus_capacitance": ln.cb, "pullup": r_eff, "rp_min": ln.rp_min,
+                           "rp_max": ln.rp_max, "v_oh": None, "noise_margin_low": None,
+                           "noise_margin_high": None, "pullup_power": None}
     if lim.cb_max is not None:
         out.pick("bus-capacitance", up, [(max_margin(ln.cb, lim.cb_max), ln.cb, lim.cb_max)], warn,
                  "F")
@@ -225,6 +238,7 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
         np.where(low, rp_lo, rp_hi), np.where(low, ln.rp_min, ln.rp_max))], warn, "Ω")
     tr = pu.rise_time(rp_hi, ln.cb, ln.rise_factor)
     f["rise_time"] = tr
+    f["rise_time_10_90"] = pu.rise_time(rp_hi, ln.cb, RISE_10_90)
     out.pick("rise-time", up, [(max_margin(tr, lim.tr_max), tr, lim.tr_max)], warn, "s")
     # -- low levels
     far = _far(s, ctx.segs, ctx.links[s.index], ln.signal)
@@ -240,8 +254,10 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
                                   for r in ln.receivers], warn, "V")
             vil_min = _reduce(np.min, [r.v_il for r in ln.receivers])
             nml = vil_min - vol_bus
+            f["noise_margin_low"] = np.min(nml, axis=-1, keepdims=True)
             if lim.v_nl_rel is not None:
                 limit = lim.v_nl_rel * v
+                f["noise_margin_low"] = _at_worst(nml, min_margin(nml, limit))
                 out.pick("noise-margin-low", up, [(min_margin(nml, limit), nml, limit)], warn, "V")
     if levels or offset_levels:
         rows = [(i, d) for _, i, d in levels + offset_levels if d is not None]
@@ -256,15 +272,20 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             i_ol = np.take_along_axis(np.stack([np.broadcast_to(d.i_ol, shape)[:, 0]
                                                 for _, d in rows], axis=1), k, axis=1)
             out.pick("sink-current", up, [(max_margin(im, i_ol), im, i_ol)], warn, "A")
+        f["pullup_power"] = _reduce(np.max, [_worst_max(v * (v - lv[0]) / rp_lo)
+                                             for lv in levels + offset_levels])
     # -- high level
     voh = pu.high_level(v, rp_hi, ln.leakage)
+    f["v_oh"] = np.min(voh, axis=-1, keepdims=True)
     if ln.receivers:
         out.pick("v-oh", up, [(min_margin(voh, r.v_ih), voh, r.v_ih) for r in ln.receivers], warn,
                  "V")
         vih_max = _reduce(np.max, [r.v_ih for r in ln.receivers])
         nmh = voh - vih_max
+        f["noise_margin_high"] = np.min(nmh, axis=-1, keepdims=True)
         if lim.v_nh_rel is not None:
             limit = lim.v_nh_rel * v
+            f["noise_margin_high"] = _at_worst(nmh, min_margin(nmh, limit))
             out.pick("noise-margin-high", up, [(min_margin(nmh, limit), nmh, limit)], warn, "V")
     # -- fall time
     falls = [_worst_max(t) for t, _, _, _ in fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far,
@@ -307,6 +328,10 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
         td = ctx.parts.timing(ctrl)
         t_low, t_high = td.t_low, td.t_high
     t_low, t_high = counted_clock(lim, clock, t_low, t_high)
+    tf_scl = figs["scl"]["fall_time"]
+    figs["segment"] = {"scl_frequency_effective": pu.scl_frequency(
+        t_low, t_high, figs["scl"]["rise_time"], tf_scl if tf_scl is not None else 0.0),
+        "sda_setup_margin": None}
     out.pick("scl-frequency", None, [(max_margin(clock, lim.f_max), clock, lim.f_max)], 0.0, "Hz")
     slow = [ctx.parts.timing(d).f_max for d in seg.devices
             if not d.is_controller and not d.is_bridge and ctx.parts.timing(d).f_max is not None]
@@ -325,6 +350,7 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
     if rows:
         tvd = _reduce(np.max, rows)
         budget = t_low - tvd - tr_sda
+        figs["segment"]["sda_setup_margin"] = budget - lim.t_su_dat
         out.pick("setup-time", None,
                  [(min_margin(budget, lim.t_su_dat), budget, lim.t_su_dat)], warn, "s")
 
@@ -466,12 +492,26 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
         for ln in s.lines.values():
             _line_checks(ctx, s, ln, out, figs)
         _segment_checks(ctx, s, out, figs)
-        sb = SegmentBatch(s.seg.id, out.checks)
-        for name in ("bus_capacitance", "rise_time", "v_ol", "fall_time"):
-            vals = [figs[sig][name] for sig in SIGNALS if figs[sig].get(name) is not None]
-            sb.figures[name] = (out._n(_reduce(np.max, [np.asarray(x).reshape(-1, 1)
-                                                         for x in vals])[:, 0])
-                                if vals else None)
-        sb.figures["pullup_resistor"] = out._n(np.asarray(s.lines["sda"].pullup, dtype=float))
-        result.segments.append(sb)
+        result.segments.append(SegmentBatch(s.seg.id, out.checks, _figures(s, figs, out)))
     return result
+
+
+def _figures(s: _Seg, figs: dict, out: _Out) -> dict:
+    """A segment's figures, each an array over the variants: the one-bus engine's (the
+    worse of the two lines, each line's own, the segment's)."""
+    def col(x):
+        return None if x is None else out._n(np.asarray(x, dtype=float).reshape(-1))
+
+    res = {}
+    for name, pick in _WORST.items():
+        vals = [np.asarray(figs[sig][name], dtype=float).reshape(-1, 1) for sig in SIGNALS
+                if figs[sig].get(name) is not None]
+        res[name] = col(_reduce(np.max if pick is max else np.min, vals)) if vals else None
+    for name in ("bus_capacitance", "rise_time", "fall_time", "pullup"):
+        for sig in SIGNALS:
+            res[f"{name}_{sig}"] = col(figs[sig].get(name))
+    res["supply"] = col(s.seg.supply)
+    res["pullup_resistor"] = col(s.lines["sda"].pullup)
+    res["rise_factor"] = col(s.lines["sda"].rise_factor)
+    res.update({k: col(x) for k, x in figs["segment"].items()})
+    return res
