@@ -172,14 +172,15 @@ class _Out:
             m, v, lim = (np.broadcast_to(a, shape)[:, 0] for a in rows[0][:3])
             self.add(id, signal, v, lim, m, status_codes(m, warn), unit)
             return
-        ms = np.stack([np.broadcast_to(r[0], shape) for r in rows], axis=1)
-        vs = np.stack([np.broadcast_to(r[1], shape) for r in rows], axis=1)
-        ls = np.stack([np.broadcast_to(r[2], shape) for r in rows], axis=1)
-        flat = ms.reshape(shape[0], -1)
-        idx = np.argmin(np.where(np.isnan(flat), -np.inf, flat), axis=1)[:, None]
-        margin = np.take_along_axis(flat, idx, axis=1)[:, 0]
-        value = np.take_along_axis(vs.reshape(shape[0], -1), idx, axis=1)[:, 0]
-        limit = np.take_along_axis(ls.reshape(shape[0], -1), idx, axis=1)[:, 0]
+        # (margin, value, limit) × variant × row × corner, filled by broadcasting
+        # assignment (one buffer rather than a broadcast view and a stack per array)
+        buf = np.empty((3, shape[0], len(rows), shape[1]))
+        for j, r in enumerate(rows):
+            for q in range(3):
+                buf[q, :, j] = r[q]
+        flat = buf.reshape(3, shape[0], -1)
+        idx = np.argmin(np.where(np.isnan(flat[0]), -np.inf, flat[0]), axis=1)[:, None]
+        margin, value, limit = (np.take_along_axis(x, idx, axis=1)[:, 0] for x in flat)
         if isinstance(warn, (list, tuple)):
             w = np.stack([np.broadcast_to(np.asarray(x, dtype=float).reshape(-1, 1)
                                           if np.ndim(x) else x, (shape[0], 1))[:, 0]
