@@ -160,8 +160,7 @@ class _Out:
         self.checks: list[BatchCheck] = []
 
     def _n(self, x):
-        return np.broadcast_to(np.asarray(x, dtype=float).reshape(-1), (self.n,)) \
-            if np.size(x) in (1, self.n) else np.asarray(x, dtype=float).reshape(self.n)
+        return _column(np.asarray(x, dtype=float), self.n)
 
     def pick(self, id, signal, rows, warn, unit):
         """The worst (row, corner) of margin arrays: ``rows`` of (margin, value, limit)
@@ -194,12 +193,17 @@ class _Out:
             None if value is None else self._n(value),
             None if limit is None else self._n(limit),
             None if margin is None else self._n(margin),
-            np.broadcast_to(np.asarray(status, dtype=np.int8).reshape(-1), (self.n,))
-            if np.size(status) == 1 else np.asarray(status, dtype=np.int8).reshape(self.n),
+            _column(np.asarray(status, dtype=np.int8), self.n),
             unit))
 
     def truth(self, id, signal, ok):
         self.add(id, signal, None, None, None, np.where(np.asarray(ok), 0, 2))
+
+
+def _column(a: np.ndarray, n: int) -> np.ndarray:
+    """``a`` as shape ``(n,)``: its own values when it has ``n``, else its one value
+    broadcast. [unit]"""
+    return a.reshape(n) if a.size == n else np.broadcast_to(a.reshape(-1), (n,))
 
 
 def _worst_max(x):
