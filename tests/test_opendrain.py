@@ -858,3 +858,72 @@ def test_level_figures_are_the_worst_extreme_and_checks_name_theirs(tmp_path):
     # at the rail's maximum (the highest low level)
     r_sink = 0.4 / 3e-3
     assert fig(res, "v_ol") == pytest.approx(3.63 * r_sink / (2200 + r_sink), rel=1e-9)
+
+
+# --------------------------------------------------------------------------- issue 12
+
+ROOT = Path(__file__).parent.parent
+_FIGURE_DESIGNS = (
+    (ROOT / "workbooks" / "designs" / "demo-board.toml", ()),
+    (TRANSLATOR_CABLE, ()),
+    (ROOT / "tests" / "golden" / "designs" / "whatif-buses.toml", (PARTS,)),
+    (ROOT / "tests" / "golden" / "designs" / "whatif-rc.toml", (PARTS,)),
+)
+
+
+@pytest.mark.parametrize("path, folders", _FIGURE_DESIGNS, ids=lambda x: getattr(x, "stem", ""))
+def test_batch_reports_every_figure_of_the_one_bus_result(path, folders):
+    from pinlib.engines.opendrain.batch import WorstCase, build
+
+    d = load_design(path, library_folders=folders)
+    buses = [b for b in d.buses if b.protocol in ("i2c", "smbus")]
+    assert buses
+    for bus in buses:
+        res = opendrain.evaluate_bus(bus, d)
+        batch = build(bus, d, WorstCase(1))
+        groups = res.segments or [res]
+        assert len(groups) == len(batch.segments)
+        for g, sb in zip(groups, batch.segments, strict=True):
+            assert set(sb.figures) == set(g.figures)
+            for name, fig in g.figures.items():
+                got = sb.figures[name]
+                if fig.value is None:
+                    assert got is None, name
+                    continue
+                # derived: the array path at the engine's corners equals the one-bus path
+                assert float(got[0]) == pytest.approx(fig.value, rel=1e-12, abs=0), name
+
+
+def _batch_number(x):
+    """A batch column's one value, with the batch's forms of "no number" (NaN, infinity)
+    as the one-bus result writes them (None)."""
+    if x is None:
+        return None
+    v = float(x[0])
+    return v if math.isfinite(v) else None
+
+
+@pytest.mark.parametrize("path, folders", _FIGURE_DESIGNS, ids=lambda x: getattr(x, "stem", ""))
+def test_batch_at_the_engine_corners_makes_every_check_of_the_one_bus_result(path, folders):
+    from pinlib.engines.opendrain.batch import STATUS, WorstCase, build
+
+    d = load_design(path, library_folders=folders)
+    for bus in (b for b in d.buses if b.protocol in ("i2c", "smbus")):
+        res = opendrain.evaluate_bus(bus, d)
+        groups = res.segments or [res]
+        batch = build(bus, d, WorstCase(1))
+        for g, sb in zip(groups, batch.segments, strict=True):
+            assert [c.id for c in g.checks] == [c.id for c in sb.checks]
+            for one, arr in zip(g.checks, sb.checks, strict=True):
+                # derived: the same rule over the same corners gives the same status and
+                # numbers (a yes/no check carries no number in the batch)
+                assert STATUS[int(arr.status[0])] == one.status, (one.id, one.subject)
+                if isinstance(one.value, bool):
+                    assert arr.value is None and arr.margin is None
+                    continue
+                for mine, theirs in ((one.value, arr.value), (one.limit, arr.limit),
+                                     (one.margin, arr.margin)):
+                    got = _batch_number(theirs)
+                    assert (got is None) == (mine is None), (one.id, one.subject)
+                    if got is not None:
+                        assert got == pytest.approx(mine, rel=1e-12, abs=0), (one.id, one.subject)

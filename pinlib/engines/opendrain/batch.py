@@ -50,6 +50,7 @@ from pinlib.engines.opendrain.batchinputs import (
     structure,
 )
 from pinlib.engines.opendrain.bridges import gate_drive
+from pinlib.engines.opendrain.explain import _WORST
 from pinlib.engines.opendrain.inputs import (
     _offset_side,
     collect,
@@ -68,6 +69,7 @@ from pinlib.library.schema import Part
 from pinlib.model.design import Bus, Design
 from pinlib.model.result import STATUSES, max_margin, min_margin, status_codes
 from pinlib.physics import pullup as pu
+from pinlib.physics.rc import RISE_10_90
 
 __all__ = [
     "STATUS",
@@ -158,8 +160,7 @@ class _Out:
         self.checks: list[BatchCheck] = []
 
     def _n(self, x):
-        return np.broadcast_to(np.asarray(x, dtype=float).reshape(-1), (self.n,)) \
-            if np.size(x) in (1, self.n) else np.asarray(x, dtype=float).reshape(self.n)
+        return _column(np.asarray(x, dtype=float), self.n)
 
     def pick(self, id, signal, rows, warn, unit):
         """The worst (row, corner) of margin arrays: ``rows`` of (margin, value, limit)
@@ -170,14 +171,15 @@ class _Out:
             m, v, lim = (np.broadcast_to(a, shape)[:, 0] for a in rows[0][:3])
             self.add(id, signal, v, lim, m, status_codes(m, warn), unit)
             return
-        ms = np.stack([np.broadcast_to(r[0], shape) for r in rows], axis=1)
-        vs = np.stack([np.broadcast_to(r[1], shape) for r in rows], axis=1)
-        ls = np.stack([np.broadcast_to(r[2], shape) for r in rows], axis=1)
-        flat = ms.reshape(shape[0], -1)
-        idx = np.argmin(np.where(np.isnan(flat), -np.inf, flat), axis=1)[:, None]
-        margin = np.take_along_axis(flat, idx, axis=1)[:, 0]
-        value = np.take_along_axis(vs.reshape(shape[0], -1), idx, axis=1)[:, 0]
-        limit = np.take_along_axis(ls.reshape(shape[0], -1), idx, axis=1)[:, 0]
+        # (margin, value, limit) × variant × row × corner, filled by broadcasting
+        # assignment (one buffer rather than a broadcast view and a stack per array)
+        buf = np.empty((3, shape[0], len(rows), shape[1]))
+        for j, r in enumerate(rows):
+            for q in range(3):
+                buf[q, :, j] = r[q]
+        flat = buf.reshape(3, shape[0], -1)
+        idx = np.argmin(np.where(np.isnan(flat[0]), -np.inf, flat[0]), axis=1)[:, None]
+        margin, value, limit = (np.take_along_axis(x, idx, axis=1)[:, 0] for x in flat)
         if isinstance(warn, (list, tuple)):
             w = np.stack([np.broadcast_to(np.asarray(x, dtype=float).reshape(-1, 1)
                                           if np.ndim(x) else x, (shape[0], 1))[:, 0]
@@ -191,17 +193,31 @@ class _Out:
             None if value is None else self._n(value),
             None if limit is None else self._n(limit),
             None if margin is None else self._n(margin),
-            np.broadcast_to(np.asarray(status, dtype=np.int8).reshape(-1), (self.n,))
-            if np.size(status) == 1 else np.asarray(status, dtype=np.int8).reshape(self.n),
+            _column(np.asarray(status, dtype=np.int8), self.n),
             unit))
 
     def truth(self, id, signal, ok):
         self.add(id, signal, None, None, None, np.where(np.asarray(ok), 0, 2))
 
 
+def _column(a: np.ndarray, n: int) -> np.ndarray:
+    """``a`` as shape ``(n,)``: its own values when it has ``n``, else its one value
+    broadcast. [unit]"""
+    return a.reshape(n) if a.size == n else np.broadcast_to(a.reshape(-1), (n,))
+
+
 def _worst_max(x):
     """Largest over the corner axis. [unit]"""
     return np.max(x, axis=1, keepdims=True)
+
+
+def _at_worst(x, margin):
+    """``x`` at the corner of the smallest ``margin`` (NaN counted as the worst), per
+    variant: the one-bus engine's figure for a check's value. [unit]"""
+    shape = np.broadcast_shapes(np.shape(x), np.shape(margin))
+    m = np.broadcast_to(margin, shape)
+    idx = np.argmin(np.where(np.isnan(m), -np.inf, m), axis=-1)[..., None]
+    return np.take_along_axis(np.broadcast_to(x, shape), idx, axis=-1)
 
 
 def _far(s: _Seg, segs: list[_Seg], links: list[_Link], signal: str):
@@ -214,7 +230,9 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     warn = ctx.warn
     r_eff = s.r_eff(ln.signal)
     rp_lo, rp_hi = r_eff * (1 - tol), r_eff * (1 + tol)
-    figs[ln.signal] = f = {"bus_capacitance": ln.cb, "pullup": r_eff}
+    figs[ln.signal] = f = {"bus_capacitance": ln.cb, "pullup": r_eff, "rp_min": ln.rp_min,
+                           "rp_max": ln.rp_max, "v_oh": None, "noise_margin_low": None,
+                           "noise_margin_high": None, "pullup_power": None}
     if lim.cb_max is not None:
         out.pick("bus-capacitance", up, [(max_margin(ln.cb, lim.cb_max), ln.cb, lim.cb_max)], warn,
                  "F")
@@ -225,6 +243,7 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
         np.where(low, rp_lo, rp_hi), np.where(low, ln.rp_min, ln.rp_max))], warn, "Ω")
     tr = pu.rise_time(rp_hi, ln.cb, ln.rise_factor)
     f["rise_time"] = tr
+    f["rise_time_10_90"] = pu.rise_time(rp_hi, ln.cb, RISE_10_90)
     out.pick("rise-time", up, [(max_margin(tr, lim.tr_max), tr, lim.tr_max)], warn, "s")
     # -- low levels
     far = _far(s, ctx.segs, ctx.links[s.index], ln.signal)
@@ -240,8 +259,10 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
                                   for r in ln.receivers], warn, "V")
             vil_min = _reduce(np.min, [r.v_il for r in ln.receivers])
             nml = vil_min - vol_bus
+            f["noise_margin_low"] = np.min(nml, axis=-1, keepdims=True)
             if lim.v_nl_rel is not None:
                 limit = lim.v_nl_rel * v
+                f["noise_margin_low"] = _at_worst(nml, min_margin(nml, limit))
                 out.pick("noise-margin-low", up, [(min_margin(nml, limit), nml, limit)], warn, "V")
     if levels or offset_levels:
         rows = [(i, d) for _, i, d in levels + offset_levels if d is not None]
@@ -256,15 +277,20 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             i_ol = np.take_along_axis(np.stack([np.broadcast_to(d.i_ol, shape)[:, 0]
                                                 for _, d in rows], axis=1), k, axis=1)
             out.pick("sink-current", up, [(max_margin(im, i_ol), im, i_ol)], warn, "A")
+        f["pullup_power"] = _reduce(np.max, [_worst_max(v * (v - lv[0]) / rp_lo)
+                                             for lv in levels + offset_levels])
     # -- high level
     voh = pu.high_level(v, rp_hi, ln.leakage)
+    f["v_oh"] = np.min(voh, axis=-1, keepdims=True)
     if ln.receivers:
         out.pick("v-oh", up, [(min_margin(voh, r.v_ih), voh, r.v_ih) for r in ln.receivers], warn,
                  "V")
         vih_max = _reduce(np.max, [r.v_ih for r in ln.receivers])
         nmh = voh - vih_max
+        f["noise_margin_high"] = np.min(nmh, axis=-1, keepdims=True)
         if lim.v_nh_rel is not None:
             limit = lim.v_nh_rel * v
+            f["noise_margin_high"] = _at_worst(nmh, min_margin(nmh, limit))
             out.pick("noise-margin-high", up, [(min_margin(nmh, limit), nmh, limit)], warn, "V")
     # -- fall time
     falls = [_worst_max(t) for t, _, _, _ in fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far,
@@ -307,6 +333,10 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
         td = ctx.parts.timing(ctrl)
         t_low, t_high = td.t_low, td.t_high
     t_low, t_high = counted_clock(lim, clock, t_low, t_high)
+    tf_scl = figs["scl"]["fall_time"]
+    figs["segment"] = {"scl_frequency_effective": pu.scl_frequency(
+        t_low, t_high, figs["scl"]["rise_time"], tf_scl if tf_scl is not None else 0.0),
+        "sda_setup_margin": None}
     out.pick("scl-frequency", None, [(max_margin(clock, lim.f_max), clock, lim.f_max)], 0.0, "Hz")
     slow = [ctx.parts.timing(d).f_max for d in seg.devices
             if not d.is_controller and not d.is_bridge and ctx.parts.timing(d).f_max is not None]
@@ -325,6 +355,7 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
     if rows:
         tvd = _reduce(np.max, rows)
         budget = t_low - tvd - tr_sda
+        figs["segment"]["sda_setup_margin"] = budget - lim.t_su_dat
         out.pick("setup-time", None,
                  [(min_margin(budget, lim.t_su_dat), budget, lim.t_su_dat)], warn, "s")
 
@@ -466,12 +497,26 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
         for ln in s.lines.values():
             _line_checks(ctx, s, ln, out, figs)
         _segment_checks(ctx, s, out, figs)
-        sb = SegmentBatch(s.seg.id, out.checks)
-        for name in ("bus_capacitance", "rise_time", "v_ol", "fall_time"):
-            vals = [figs[sig][name] for sig in SIGNALS if figs[sig].get(name) is not None]
-            sb.figures[name] = (out._n(_reduce(np.max, [np.asarray(x).reshape(-1, 1)
-                                                         for x in vals])[:, 0])
-                                if vals else None)
-        sb.figures["pullup_resistor"] = out._n(np.asarray(s.lines["sda"].pullup, dtype=float))
-        result.segments.append(sb)
+        result.segments.append(SegmentBatch(s.seg.id, out.checks, _figures(s, figs, out)))
     return result
+
+
+def _figures(s: _Seg, figs: dict, out: _Out) -> dict:
+    """A segment's figures, each an array over the variants: the one-bus engine's (the
+    worse of the two lines, each line's own, the segment's)."""
+    def col(x):
+        return None if x is None else out._n(np.asarray(x, dtype=float).reshape(-1))
+
+    res = {}
+    for name, pick in _WORST.items():
+        vals = [np.asarray(figs[sig][name], dtype=float).reshape(-1, 1) for sig in SIGNALS
+                if figs[sig].get(name) is not None]
+        res[name] = col(_reduce(np.max if pick is max else np.min, vals)) if vals else None
+    for name in ("bus_capacitance", "rise_time", "fall_time", "pullup"):
+        for sig in SIGNALS:
+            res[f"{name}_{sig}"] = col(figs[sig].get(name))
+    res["supply"] = col(s.seg.supply)
+    res["pullup_resistor"] = col(s.lines["sda"].pullup)
+    res["rise_factor"] = col(s.lines["sda"].rise_factor)
+    res.update({k: col(x) for k, x in figs["segment"].items()})
+    return res
