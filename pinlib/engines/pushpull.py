@@ -27,13 +27,12 @@ from dataclasses import replace
 
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError
-from pinlib.core.quantity import format_si
-from pinlib.engines.opendrain.rules import supply_margin
+from pinlib.engines.opendrain.rules import supply_range_check
 from pinlib.engines.pushline import Endpoint, analyse_line, device_supply
 from pinlib.engines.spi import evaluate_spi
 from pinlib.library.schema import Pin
 from pinlib.model.design import Bus, Design, Device
-from pinlib.model.result import BusResult, Check, check_max, check_min
+from pinlib.model.result import BusResult, Check
 
 __all__ = ["evaluate_bus", "evaluate_board", "evaluate_gpio", "gpio_pin", "supply_checks",
            "supply_rows"]
@@ -179,25 +178,12 @@ def supply_rows(bus: Bus) -> list[tuple]:
 
 def supply_checks(bus: Bus) -> list[Check]:
     """Every device's rail against its part's supply range (the rule of the open-drain
-    engine: :func:`pinlib.engines.opendrain.rules.supply_margin`, a datasheet range is a
+    engine: :func:`pinlib.engines.opendrain.rules.supply_range_check`, a datasheet range is a
     hard limit, no warning band).  The rail's tolerance enters through the corners
     :func:`evaluate_bus` takes. [V]"""
     out = []
     for d, v, lo, hi, src in supply_rows(bus):
-        m, low_side = supply_margin(v, v, lo, hi)
-        rng = f"{format_si(lo, 'V')} to {format_si(hi, 'V')}"
-        if bool(low_side):
-            chk = check_min("supply-range", v, lo, "V", src,
-                            f"{d.ref} runs from {format_si(v, 'V')}; its part needs {rng}",
-                            subject=d.ref, warn_margin=0.0)
-        else:
-            chk = check_max("supply-range", v, hi, "V", src,
-                            f"{d.ref} runs from {format_si(v, 'V')}; its part allows {rng}",
-                            subject=d.ref, warn_margin=0.0)
-        if chk.status == "fail":
-            chk.fix = ("give the device its own rail (supply = \"...\" on the device) or "
-                       "choose a part for this rail")
-            chk.message += f"; {chk.fix}"
+        chk = supply_range_check(d.ref, v, v, lo, hi, lambda _low, src=src: src, ends=False)
         out.append(chk)
     return out
 

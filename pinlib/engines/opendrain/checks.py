@@ -42,6 +42,7 @@ from pinlib.engines.opendrain.rules import (
     delays,
     links,
     supply_margin,
+    supply_range_check,
     worst_index,
     worst_per_row,
 )
@@ -520,25 +521,12 @@ def _domain_checks(ctx: Context, seg_in: SegmentInputs, grp: Group, taps: list) 
     if rows:
         rows.sort(key=lambda x: x[0])
         _, low_side, lo, hi, sup, t = rows[0]
-        side = t.dev.side
-        where = "supply" if sup is t.dev.part.supply else f"sides.{side}.supply"
-        src = (value_source(t.dev, f"{where}.min", sup.min) if low_side
-               else value_source(t.dev, f"{where}.max", sup.max))
-        rng = f"{_f(float(sup.min.value), 'V')} to {_f(float(sup.max.value), 'V')}"
-        if low_side:
-            chk = check_min("supply-range", lo, float(sup.min.value), "V", src,
-                            f"{t.label} runs from {_f(lo, 'V')} at the rail's minimum; its part "
-                            f"needs {rng}",
-                            subject=t.label, warn_margin=0.0)
-        else:
-            chk = check_max("supply-range", hi, float(sup.max.value), "V", src,
-                            f"{t.label} runs from {_f(hi, 'V')} at the rail's maximum; its part "
-                            f"allows {rng}",
-                            subject=t.label, warn_margin=0.0)
-        if chk.status == "fail":
-            chk.fix = ("give the device its own rail (supply = \"...\" on the device) or choose a "
-                       "part for this rail")
-            chk.message += f"; {chk.fix}"
+        where = "supply" if sup is t.dev.part.supply else f"sides.{t.dev.side}.supply"
+        chk = supply_range_check(
+            t.label, lo, hi, float(sup.min.value), float(sup.max.value),
+            lambda low, t=t, where=where, sup=sup: (
+                value_source(t.dev, f"{where}.min", sup.min) if low
+                else value_source(t.dev, f"{where}.max", sup.max)))
         grp.add(chk)
 
 

@@ -21,7 +21,7 @@ from pinlib.core.protocols import protocol
 from pinlib.engines.limits import OpenDrainLimits
 from pinlib.library.schema import Pin
 from pinlib.model.design import Bus, Device, Segment
-from pinlib.model.result import max_margin, min_margin
+from pinlib.model.result import Check, check_max, check_min, max_margin, min_margin
 from pinlib.physics import pullup as pu
 from pinlib.physics import rc
 
@@ -267,6 +267,34 @@ def data_sources(index: int, ctrl_seg: int, segments: list[tuple[int, Segment]],
                 yield d, 2.0 * delay.get(i, 0.0)
     elif ctrl is not None:
         yield ctrl, 0.0
+
+
+def supply_range_check(who: str, lo: float, hi: float, s_min: float, s_max: float,
+                       source_of, *, ends: bool = True) -> Check:
+    """The ``supply-range`` check of one device, for every engine: the rail's ends ``lo``
+    and ``hi`` against its part's supply range, at the end nearer its limit.  A datasheet
+    range is a hard limit: inside it passes, with no warning band.  ``source_of(low_side)``
+    names the limit's source; ``ends``: the message names the rail's end (False for one
+    board's rail, ``lo == hi``, whose corners the engine takes elsewhere). [V]"""
+    from pinlib.core.quantity import format_si
+
+    m, low_side = supply_margin(lo, hi, s_min, s_max)
+    rng = f"{format_si(s_min, 'V')} to {format_si(s_max, 'V')}"
+    if bool(low_side):
+        at = " at the rail's minimum" if ends else ""
+        chk = check_min("supply-range", lo, s_min, "V", source_of(True),
+                        f"{who} runs from {format_si(lo, 'V')}{at}; its part needs {rng}",
+                        subject=who, warn_margin=0.0)
+    else:
+        at = " at the rail's maximum" if ends else ""
+        chk = check_max("supply-range", hi, s_max, "V", source_of(False),
+                        f"{who} runs from {format_si(hi, 'V')}{at}; its part allows {rng}",
+                        subject=who, warn_margin=0.0)
+    if chk.status == "fail":
+        chk.fix = ("give the device its own rail (supply = \"...\" on the device) or choose a "
+                   "part for this rail")
+        chk.message += f"; {chk.fix}"
+    return chk
 
 
 def supply_margin(lo, hi, s_min, s_max):
