@@ -325,3 +325,41 @@ def test_timing_sources_name_the_class_an_inherited_value_came_from(tmp_path, mo
     (u7,) = sa.peripherals
     assert u7.sources["t_valid"].startswith("adc-spi t_valid: ")
     assert not any("rev B" in s for n, s in u7.sources.items() if n != "f_max")
+
+
+CLASS_WITH_BASIS_ONLY = """\
+format = "pinlib.part/1"
+id = "t-adc-class"
+title = "Invented ADC class (test data)"
+category = "converter"
+extends = "adc-spi"
+provenance = { basis = "generic", source = "class notes (invented)" }
+
+[pins.sclk]
+abs_max = { value = "VDD + 0.5 V", basis = "generic" }
+"""
+
+TEAM_OF_CLASS = """\
+format = "pinlib.part/1"
+id = "t-adc-team"
+title = "Invented ADC (test data)"
+category = "converter"
+extends = "t-adc-class"
+provenance = { basis = "datasheet", source = "datasheet rev B" }
+"""
+
+
+def test_a_pin_value_inherited_with_a_basis_only_never_takes_the_placed_parts_source(
+        tmp_path, monkeypatch):
+    # 13.5: the sclk abs_max comes from t-adc-class (basis only); the overshoot check's
+    # source names that class, not the placed part's "datasheet rev B"
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    (tmp_path / "t-adc-class.toml").write_text(CLASS_WITH_BASIS_ONLY, encoding="utf-8")
+    (tmp_path / "t-adc-team.toml").write_text(TEAM_OF_CLASS, encoding="utf-8")
+    (tmp_path / "d.toml").write_text(TEAM_DESIGN.replace("adc-acme", "t-adc-team"),
+                                     encoding="utf-8")
+    design = load_design(tmp_path / "d.toml", library_folders=[tmp_path])
+    res = evaluate_bus(design.bus("s"), design)
+    sclk = next(ln for ln in res.lines if ln.signal == "sclk")
+    sources = [c.source for c in sclk.checks if c.id == "overshoot" and c.subject == "U7"]
+    assert sources and all("t-adc-class" in s and "rev B" not in s for s in sources), sources

@@ -58,9 +58,15 @@ class Endpoint:
         """Where the pin's value ``name`` comes from, for a check's ``source``."""
         got = getattr(self.pin, name, None)
         part = self.device.part
-        text = (got.source if got is not None and got.source else None) or \
-            part.provenance.source or part.provenance.basis
         origin = got.origin if got is not None and got.origin else self.device.part_id
+        if got is not None and got.source:
+            text = got.source
+        elif got is not None and origin != self.device.part_id:
+            # inherited without a source of its own: the value's basis and the file that
+            # set it, never the placed part's provenance
+            text = got.provenance_text()
+        else:
+            text = part.provenance.source or part.provenance.basis
         return f"{origin} {name}: {text}"
 
 
