@@ -217,3 +217,16 @@ def test_far_end_grows_with_length_over_edge():
     assert x2.far_peak == pytest.approx(2 * x1.far_peak, rel=1e-12)
     assert x3.far_peak == pytest.approx(x1.far_peak, rel=1e-12)
     assert x1.far_peak < 0  # er_eff_odd < er_eff_even: inductive coupling dominates
+
+
+def test_wave_step_longer_than_the_modal_delay_is_refused():
+    from pinlib.physics.coupledwave import EndLoads, coupled_waves
+    pair = from_modes(60.0, 40.0, 3.3, 2.9)
+    t = np.arange(0.0, 1e-9, 50e-12)  # 50 ps step on a 1 mm run (about 6 ps delay)
+    with pytest.raises(InputError) as info:
+        coupled_waves(pair, 1e-3, t, EndLoads((50, 50), (0, 0)), EndLoads((50, 50), (0, 0)))
+    assert info.value.field == "t"
+    with pytest.raises(InputError) as info:
+        coupled_waves(pair, 0.1, np.arange(0.0, 1e-9, 1e-12), EndLoads((0, 50), (0, 0)),
+                      EndLoads((50, 50), (0, 0)))
+    assert info.value.field == "near"
