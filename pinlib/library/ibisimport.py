@@ -14,14 +14,20 @@ import datetime as _dt
 from pathlib import Path
 
 from pinlib.core import messages as M
-from pinlib.core.errors import LibraryError, WriteError
+from pinlib.core.errors import LibraryError
 from pinlib.core.protocols import PIN_FUNCTIONS, PROTOCOLS
 from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import atomic_write, file_lock
 from pinlib.library import loader
 from pinlib.library.ibis import IbisFile
 from pinlib.library.ibisderive import Derived, _model_of, derive_pin
-from pinlib.library.record import _check_id, _refuse_builtin, _toml_string, _validate
+from pinlib.library.record import (
+    _check_id,
+    _refuse_builtin,
+    _toml_string,
+    _validate,
+    team_folder,
+)
 from pinlib.library.schema import CATEGORIES, FORMAT
 
 __all__ = ["OPEN_DRAIN_FUNCTIONS", "part_text", "import_part"]
@@ -118,17 +124,10 @@ def import_part(library: loader.Library, ibis: IbisFile, component: str,
         raise LibraryError(M.PART_ID_EXISTS, field="id", value=new_id,
                            file=str(library.files[new_id].path),
                            hint="choose another id with --id")
-    folder = Path(into_folder)
-    _refuse_builtin(folder, "an imported part belongs in a team folder",
+    _refuse_builtin(Path(into_folder), "an imported part belongs in a team folder",
                     "name a team library folder with --into")
     text = part_text(ibis, component, pins, new_id, **kw)
-    if folder.exists() and not folder.is_dir():
-        raise WriteError(M.NOT_A_FOLDER, file=str(folder))
-    try:
-        folder.mkdir(parents=True, exist_ok=True)
-    except OSError as exc:
-        raise WriteError(M.CANNOT_CREATE_FOLDER.format(reason=exc.strerror),
-                         file=str(folder)) from None
+    folder = team_folder(into_folder, "an imported part belongs in a team folder")
     target = folder / f"{new_id}.toml"
     with file_lock(target):
         if target.exists():

@@ -56,6 +56,21 @@ def _inside_builtin(path: Path) -> bool:
     return True
 
 
+def team_folder(into_folder, why: str) -> Path:
+    """The team library folder a new part file goes into, made when missing; the built-in
+    library is refused (``why`` says what belongs elsewhere)."""
+    folder = Path(into_folder)
+    _refuse_builtin(folder, why, "name a team library folder with --into")
+    if folder.exists() and not folder.is_dir():
+        raise WriteError(M.NOT_A_FOLDER, file=str(folder))
+    try:
+        folder.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise WriteError(M.CANNOT_CREATE_FOLDER.format(reason=exc.strerror),
+                         file=str(folder)) from None
+    return folder
+
+
 def _refuse_builtin(path: Path, what: str, hint: str) -> None:
     if _inside_builtin(path):
         raise LibraryError(M.BUILTIN_NOT_WRITTEN_BECAUSE.format(reason=what), file=str(path),
@@ -116,16 +131,7 @@ def new_part(library: loader.Library, new_id: str, from_class: str,
     if basis not in RECORD_BASES + ("generic",):
         raise InputError(M.UNKNOWN_BASIS, field="basis", value=basis,
                          expected="one of " + ", ".join(RECORD_BASES + ("generic",)))
-    folder = Path(into_folder)
-    _refuse_builtin(folder, "a new part belongs in a team folder",
-                    "name a team library folder with --into")
-    if folder.exists() and not folder.is_dir():
-        raise WriteError(M.NOT_A_FOLDER, file=str(folder))
-    try:
-        folder.mkdir(parents=True, exist_ok=True)
-    except OSError as exc:
-        raise WriteError(M.CANNOT_CREATE_FOLDER.format(reason=exc.strerror),
-                         file=str(folder)) from None
+    folder = team_folder(into_folder, "a new part belongs in a team folder")
     target = folder / f"{new_id}.toml"
     today = _dt.date.today()
     title = parent.title if title is None else title
