@@ -91,19 +91,25 @@ def add_parser(sub) -> None:
 
 def parse_assignments(items) -> dict[str, str]:
     """``["U4=eeprom-hicap", ...]`` -> ``{"U4": "eeprom-hicap"}``."""
+    return _pairs(items, _ASSIGN, "REF=PART", M.SUBSTITUTION_FORM,
+                  "e.g. U4=eeprom-i2c (a part id: lowercase, digits, -)")
+
+
+def _pairs(items, pattern, field: str, problem: str, expected: str) -> dict[str, str]:
+    """``KEY=VALUE`` items as a dict: each must match ``pattern``, and a key given twice
+    must name the same value."""
     from pinlib.core.errors import InputError
 
     out: dict[str, str] = {}
     for item in items:
-        m = _ASSIGN.match(item)
+        m = pattern.match(item)
         if not m:
-            raise InputError(M.SUBSTITUTION_FORM, field="REF=PART", value=item,
-                             expected="e.g. U4=eeprom-i2c (a part id: lowercase, digits, -)")
-        ref, part = m.groups()
-        if ref in out and out[ref] != part:
-            raise InputError(M.SUBSTITUTED_TWICE, field="REF=PART", value=ref,
-                             hint=f"{out[ref]} and {part}")
-        out[ref] = part
+            raise InputError(problem, field=field, value=item, expected=expected)
+        key, value = m.groups()
+        if key in out and out[key] != value:
+            raise InputError(M.SUBSTITUTED_TWICE, field=field, value=key,
+                             hint=f"{out[key]} and {value}")
+        out[key] = value
     return out
 
 
@@ -331,20 +337,7 @@ def _text(design, swap_rows, rows, before, after, changes, detail=False) -> list
 
 def parse_part_pairs(items) -> dict[str, str]:
     """``["eeprom-i2c=eeprom-hicap", ...]`` -> ``{"eeprom-i2c": "eeprom-hicap"}``."""
-    from pinlib.core.errors import InputError
-
-    out: dict[str, str] = {}
-    for item in items:
-        m = _PAIR.match(item)
-        if not m:
-            raise InputError(M.SWAP_PART_FORM, field="--part", value=item,
-                             expected="e.g. eeprom-i2c=eeprom-hicap")
-        old, new = m.groups()
-        if old in out and out[old] != new:
-            raise InputError(M.SUBSTITUTED_TWICE, field="--part", value=old,
-                             hint=f"{out[old]} and {new}")
-        out[old] = new
-    return out
+    return _pairs(items, _PAIR, "--part", M.SWAP_PART_FORM, "e.g. eeprom-i2c=eeprom-hicap")
 
 
 _PAIR = re.compile(r"^\s*([a-z0-9][a-z0-9-]*)\s*=\s*([a-z0-9][a-z0-9-]*)\s*$")
