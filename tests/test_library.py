@@ -14,7 +14,7 @@ from hypothesis import strategies as st
 
 from pinlib.core.errors import LibraryError, PinlibError
 from pinlib.core.quantity import UNITS, parse, parse_threshold
-from pinlib.library import loader
+from pinlib.library import loader, walk
 from pinlib.library.jsonschema import level_pattern, part_json_schema, quantity_pattern
 from pinlib.library.loader import library_folders, load_library
 
@@ -340,10 +340,10 @@ def test_the_walk_of_a_library_folder_is_bounded(builtin, tmp_path, monkeypatch)
     wide = tmp_path / "wide"
     for i in range(11):
         write(wide, f"p{i}.toml", part(f"p{i}", "base"))
-    monkeypatch.setattr(loader, "MAX_PART_FILES", 10)
+    monkeypatch.setattr(walk, "MAX_PART_FILES", 10)
     with pytest.raises(LibraryError, match="more than 10 part files"):
         load_library([wide])
-    monkeypatch.setattr(loader, "MAX_FOLDER_ENTRIES", 5)
+    monkeypatch.setattr(walk, "MAX_FOLDER_ENTRIES", 5)
     with pytest.raises(LibraryError, match="more than 5 files and folders"):
         load_library([wide])
 

@@ -24,7 +24,7 @@ from pinlib.core.errors import PinlibError
 from pinlib.core.quantity import parse, parse_threshold
 from pinlib.core.tomlfile import atomic_write, file_lock, tomllib
 from pinlib.core.tomlfile import load as load_toml
-from pinlib.library import loader
+from pinlib.library import loader, walk
 from pinlib.library import record as rec
 from pinlib.library.fields import resolve_path
 from pinlib.library.loader import load_library
@@ -390,7 +390,7 @@ def _(env):
 
 @case("LIBRARY_TOO_BIG", M.LIBRARY_TOO_BIG.format(limit=3))
 def _(env):
-    env.monkeypatch.setattr(loader, "MAX_FOLDER_ENTRIES", 3)
+    env.monkeypatch.setattr(walk, "MAX_FOLDER_ENTRIES", 3)
     for n in "abcd":
         env.write(f"team/{n}.toml", PART.format(id=n))
     return _fails(lambda e: load_library([e.tmp / "team"], env=False), env)
@@ -398,7 +398,7 @@ def _(env):
 
 @case("LIBRARY_TOO_MANY_FILES", M.LIBRARY_TOO_MANY_FILES.format(limit=3))
 def _(env):
-    env.monkeypatch.setattr(loader, "MAX_PART_FILES", 3)
+    env.monkeypatch.setattr(walk, "MAX_PART_FILES", 3)
     for n in "abcd":
         env.write(f"team/{n}.toml", PART.format(id=n))
     return _fails(lambda e: load_library([e.tmp / "team"], env=False), env)

@@ -12,7 +12,7 @@ import os
 import sys
 from pathlib import Path
 
-from pinlib.cli.commands import partsimport
+from pinlib.cli.commands import partsimport, partsusedby
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 
@@ -564,7 +564,7 @@ def _run_check(args) -> int:
             problems.append(LibraryError(M.PART_DOES_NOT_LOAD, file=str(pf.path),
                                          field="extends", hint="a problem in a file it extends"))
             problems += related
-        from pinlib.library.loader import part_paths
+        from pinlib.library.walk import part_paths
 
         n_files = len(part_paths(folder)[0])  # the files the bounded walk read
         scope = _rel(folder)
@@ -596,26 +596,5 @@ def _run_schema(args) -> int:
     return 0
 
 
-# --- used-by ---------------------------------------------------------------------------
-
 def _run_used_by(args) -> int:
-    from pinlib.present.designs import format_uses
-    from pinlib.studies.many import expand_designs, is_design_file, used_by
-
-    lib = _load(args)
-    if args.id not in lib.files:
-        near = lib.closest(args.id)
-        raise InputError(M.NOT_A_LIBRARY_PART, field="ID", value=args.id,
-                         hint=("closest: " + ", ".join(near)) if near else None)
-    paths = expand_designs(args.designs or ["**/*.toml"])
-    paths = paths if args.designs else [p for p in paths if is_design_file(p)]
-    uses, errors = used_by(args.id, paths, args.library)
-    for e in errors:
-        print("pinlib: error: " + M.DESIGN_NOT_LOADED.format(path=e["path"], message=e["error"]),
-              file=sys.stderr)
-    if args.json:
-        out = {"part": args.id, "uses": uses, "errors": errors}
-        sys.stdout.write(json.dumps(out, indent=2, ensure_ascii=False) + "\n")
-    else:
-        sys.stdout.write(format_uses(args.id, uses, len(paths)))
-    return 2 if errors else 0
+    return partsusedby.run_used_by(args, _load)

@@ -1,0 +1,35 @@
+"""``pinlib parts used-by``: the designs and positions that use a part (its own module,
+as ``parts import``, to keep :mod:`pinlib.cli.commands.parts` small)."""
+
+from __future__ import annotations
+
+import json
+import sys
+
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
+
+
+def run_used_by(args, load) -> int:
+    """`pinlib parts used-by ID [DESIGN...]`: every design position that uses the part,
+    directly or through a class it extends (``load(args)`` gives the library)."""
+    from pinlib.present.designs import format_uses
+    from pinlib.studies.many import expand_designs, is_design_file, used_by
+
+    lib = load(args)
+    if args.id not in lib.files:
+        near = lib.closest(args.id)
+        raise InputError(M.NOT_A_LIBRARY_PART, field="ID", value=args.id,
+                         hint=("closest: " + ", ".join(near)) if near else None)
+    paths = expand_designs(args.designs or ["**/*.toml"])
+    paths = paths if args.designs else [p for p in paths if is_design_file(p)]
+    uses, errors = used_by(args.id, paths, args.library)
+    for e in errors:
+        print("pinlib: error: " + M.DESIGN_NOT_LOADED.format(path=e["path"], message=e["error"]),
+              file=sys.stderr)
+    if args.json:
+        out = {"part": args.id, "uses": uses, "errors": errors}
+        sys.stdout.write(json.dumps(out, indent=2, ensure_ascii=False) + "\n")
+    else:
+        sys.stdout.write(format_uses(args.id, uses, len(paths)))
+    return 2 if errors else 0
