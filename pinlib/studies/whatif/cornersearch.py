@@ -18,7 +18,7 @@ from pinlib.engines.opendrain import batch as ob
 from pinlib.model.design import Design
 from pinlib.model.result import json_number
 from pinlib.studies.whatif.checknames import _names, _not_sampled
-from pinlib.studies.whatif.mcresult import _fmt_margin
+from pinlib.studies.whatif.mcresult import _fmt_margin, find_check
 from pinlib.studies.whatif.tolerances import Parameter, Sampled, _collected, _nominal, parameters
 
 #: Up to this many parameters on a bus, corners tries every vertex (2**k).
@@ -79,11 +79,7 @@ class CornersResult:
 
     def find(self, bus: str, check_id: str, signal: str | None = None,
              segment: str | None = None) -> CornerCheck:
-        for c in self.checks:
-            if c.bus == bus and c.id == check_id and (signal is None or c.signal == signal) \
-                    and (segment is None or c.segment == segment):
-                return c
-        raise KeyError((bus, check_id, signal, segment))
+        return find_check(self.checks, bus, check_id, signal, segment)
 
     def to_json(self) -> dict:
         return {"format": "pinlib.corners/1", "design": self.design,

@@ -14,6 +14,17 @@ from pinlib.studies.whatif.tolerances import Parameter
 from pinlib.studies.whatif.yields import CONFIDENCE, Yield, _pct
 
 
+def find_check(checks, bus: str, check_id: str, signal: str | None = None,
+               segment: str | None = None):
+    """The first of ``checks`` (a study's, each with ``bus``, ``id``, ``signal`` and
+    ``segment``) of a bus with this id, and line or segment when given; KeyError if none."""
+    for c in checks:
+        if c.bus == bus and c.id == check_id and (signal is None or c.signal == signal) \
+                and (segment is None or c.segment == segment):
+            return c
+    raise KeyError((bus, check_id, signal, segment))
+
+
 @dataclass
 class McCheck:
     """One check over the drawn boards.
@@ -134,11 +145,7 @@ class McResult:
     def find(self, bus: str, check_id: str, signal: str | None = None,
              segment: str | None = None) -> McCheck:
         """The first check of a bus with this id (and line, segment)."""
-        for c in self.checks:
-            if c.bus == bus and c.id == check_id and (signal is None or c.signal == signal) \
-                    and (segment is None or c.segment == segment):
-                return c
-        raise KeyError((bus, check_id, signal, segment))
+        return find_check(self.checks, bus, check_id, signal, segment)
 
     def to_json(self) -> dict:
         return {
