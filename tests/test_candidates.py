@@ -256,7 +256,7 @@ def test_the_worst_check_is_one_of_the_worst_status():
     from pinlib.model.result import BusResult, Check
     from pinlib.studies.candidates import _summary_of
 
-    r = BusResult(id="b", protocol="i2c")
+    r = BusResult(id="b", protocol="i2c")  # invented values (test data, no source)
     r.add(Check("device-speed", "pass", 4e5, 4e5, "Hz", 0.0, "rating", "at the rating"))
     r.add(Check("rise-time", "warn", 270e-9, 300e-9, "s", 0.05, "limit", "close"))
     dev = SimpleNamespace(is_bridge=False, ref="U2")
