@@ -184,13 +184,30 @@ devices = [
     assert large < 1.33 * small, (small, large)
 
 
-@pytest.mark.skipif(os.name != "posix", reason="SIGINT to a child process")
+def _wait_for_cpu(pid: int, cpu_seconds: float, *, deadline: float) -> None:
+    """Return once process ``pid`` has used ``cpu_seconds`` of CPU (user + system), or
+    after ``deadline`` seconds of wall time."""
+    tick = os.sysconf("SC_CLK_TCK")
+    end = time.monotonic() + deadline
+    while time.monotonic() < end:
+        try:
+            fields = Path(f"/proc/{pid}/stat").read_text().rsplit(")", 1)[1].split()
+        except OSError:
+            return  # gone already: the assertions below say why
+        if (int(fields[11]) + int(fields[12])) / tick >= cpu_seconds:
+            return
+        time.sleep(0.05)
+
+
+@pytest.mark.skipif(not Path("/proc/self/stat").exists(), reason="SIGINT to a child process")
 def test_ctrl_c_stops_a_long_run_cleanly():
     cmd = [sys.executable, "-m", "pinlib", "check", str(DEMO), "--monte-carlo", "20000000"]
     env = {**os.environ, "PINLIB_CACHE_DIR": "off"}
     proc = subprocess.Popen(cmd, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True,
                             env=env)
-    time.sleep(4.0)  # imports, the design and the first chunks
+    # wait until the child has spent CPU time past its imports and into the first chunks
+    # (CPU time, not wall time: a loaded machine slows both alike)
+    _wait_for_cpu(proc.pid, 2.0, deadline=60.0)
     proc.send_signal(signal.SIGINT)
     out, err = proc.communicate(timeout=60)
     assert proc.returncode == 130, err
