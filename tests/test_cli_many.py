@@ -215,6 +215,16 @@ def test_used_by_finds_direct_and_inherited_uses(tmp_path, capsys, monkeypatch):
     assert "bus sensors  cable  ribbon-cable" in capsys.readouterr().out
 
 
+def test_used_by_without_designs_walks_the_current_folder_within_bounds(
+        capsys, monkeypatch):
+    # from a file system root the search for designs is refused, not a walk of the disk
+    monkeypatch.chdir("/")
+    assert main(["parts", "used-by", "eeprom-i2c"]) == 2
+    err = capsys.readouterr().err
+    assert "the current folder is searched, but not this one" in err
+    assert "system folder" in err and "Traceback" not in err
+
+
 # ---------------------------------------------------------------- swap over many designs
 def test_swap_part_over_designs_reports_and_writes_only_what_was_not_refused(
         tmp_path, capsys, monkeypatch):

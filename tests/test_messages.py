@@ -1248,6 +1248,14 @@ def _(env):
     return env.cli("parts", "used-by", "no-such-part", str(env.write("a.toml", HEAD + I2C_BUS)))
 
 
+@case("USED_BY_FOLDER_REFUSED",
+      lambda: M.USED_BY_FOLDER_REFUSED.format(reason=M.LIBRARY_IS_SYSTEM_FOLDER.format(
+          real="/")))
+def _(env):
+    env.monkeypatch.chdir("/")  # no designs named: the current folder, a root, is refused
+    return env.cli("parts", "used-by", "eeprom-i2c")
+
+
 @case("SWAP_NEEDS_SUBSTITUTION")
 def _(env):
     return env.cli("swap", str(env.write("design.toml", HEAD + I2C_BUS)))

@@ -205,6 +205,8 @@ REF_PLACED_TWICE = "one reference placed twice"
 NEW_FILE_EXISTS = "the file exists; 'pinlib new' does not overwrite a file"
 NO_BUS_FOR_PARTS = "no two of these parts share a protocol, so no bus can be written"
 NO_DESIGN_MATCHES = "no design file matches this pattern"
+USED_BY_FOLDER_REFUSED = ("without design files named, the current folder is searched, "
+                          "but not this one: {reason}")
 NOT_A_LIBRARY_PART = "no part of the library has this id"
 DESIGN_NOT_LOADED = "{path}: not checked: {message}"
 SCHEMA_KIND = "no schema of this kind"

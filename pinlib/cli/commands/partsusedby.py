@@ -10,6 +10,24 @@ from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 
 
+def _toml_files_here() -> list:
+    """The ``*.toml`` files under the current folder, by the library's bounded walk (a
+    system folder, the home folder or a tree past the walk's bounds is refused)."""
+    from pathlib import Path
+
+    from pinlib.core.errors import LibraryError
+    from pinlib.library.walk import part_paths
+
+    try:
+        paths, _problems = part_paths(Path.cwd())
+    except LibraryError as exc:
+        raise InputError(M.USED_BY_FOLDER_REFUSED.format(reason=exc.problem),
+                         field="DESIGN", value=str(Path.cwd()),
+                         expected="design files or a pattern (e.g. 'boards/**/*.toml')"
+                         ) from None
+    return paths
+
+
 def run_used_by(args, load) -> int:
     """`pinlib parts used-by ID [DESIGN...]`: every design position that uses the part,
     directly or through a class it extends (``load(args)`` gives the library)."""
@@ -21,8 +39,10 @@ def run_used_by(args, load) -> int:
         near = lib.closest(args.id)
         raise InputError(M.NOT_A_LIBRARY_PART, field="ID", value=args.id,
                          hint=("closest: " + ", ".join(near)) if near else None)
-    paths = expand_designs(args.designs or ["**/*.toml"])
-    paths = paths if args.designs else [p for p in paths if is_design_file(p)]
+    if args.designs:
+        paths = expand_designs(args.designs)
+    else:
+        paths = [p for p in _toml_files_here() if is_design_file(p)]
     uses, errors = used_by(args.id, paths, args.library)
     for e in errors:
         print("pinlib: error: " + M.DESIGN_NOT_LOADED.format(path=e["path"], message=e["error"]),
