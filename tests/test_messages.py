@@ -623,6 +623,17 @@ def _(env):
     return _fails(lambda e: e.part(_pin_value('"8 pF"\nedges = [{ load = "15 pF" }]')), env)
 
 
+@case("FAST_CORNER_EMPTY")
+def _(env):
+    return _fails(lambda e: e.part(_pin_value('"8 pF"\nfast = { description = "x" }')
+                                   .replace('"open-drain"', '"push-pull"', 1)), env)
+
+
+@case("FAST_CORNER_NEEDS_PUSH_PULL", M.FAST_CORNER_NEEDS_PUSH_PULL.format(drive="open-drain"))
+def _(env):
+    return _fails(lambda e: e.part(_pin_value('"8 pF"\nfast = { r_out = "12 Ω" }')), env)
+
+
 @case("SUPPLY_MAX_BELOW_MIN", M.SUPPLY_MAX_BELOW_MIN.format(max="2 V", min="3 V"))
 def _(env):
     return _fails(lambda e: e.part(PART.format(id="p").replace(

@@ -98,6 +98,9 @@ LIBRARY_TOO_MANY_FILES = "the library folder holds more than {limit:,} part file
 LINK_OUT_OF_LIBRARY = "a link out of the library folder is not followed"
 # schema.py (pydantic validators: the loader removes pydantic's "Value error, ")
 EDGE_NEEDS_RISE_OR_FALL = "an edge point needs rise or fall (or both)"
+FAST_CORNER_EMPTY = "a fast corner needs r_out or edges (or both)"
+FAST_CORNER_NEEDS_PUSH_PULL = ("a fast corner belongs to a push-pull output; this pin's drive "
+                               "is {drive}")
 SUPPLY_MAX_BELOW_MIN = "supply max {max} is below min {min}"
 SUPPLY_MIN_NOT_POSITIVE = "the supply min must be above 0 V"
 BRIDGE_BOTH_SIDES = "a bridging part describes both sides, [sides.a] and [sides.b]"

@@ -119,6 +119,8 @@ def part_warnings(part: Part, lib=None, *, own_only: bool = False) -> list[Libra
                 value = getattr(pin, field)
                 if isinstance(value, Sourced):
                     _add(prefix + (name, field), value, field, pin.drive, ends)
+            if pin.fast is not None and pin.fast.r_out is not None:
+                _add(prefix + (name, "fast", "r_out"), pin.fast.r_out, "r_out", pin.drive)
 
     def _add(path, value, field, drive, ends=()):
         if own_only and value.origin not in (None, part.id):
