@@ -2505,6 +2505,17 @@ def _(env):
                                        drive="open-drain", i_ol=5.0), env)
 
 
+@case("IBIS_FIT_POOR", lambda: M.IBIS_FIT_POOR.split("{limit}")[1])
+def _(env):
+    from pinlib.engines.ibisdriver import output_corners
+    from pinlib.library.ibis import parse_ibis
+    from tests.test_ibis import ibis_text
+    from tests.test_ibisfit import waveforms
+    f = parse_ibis(ibis_text(edges=waveforms(bump=0.4)))
+    got = output_corners(f, f.components["DEMO-IO"].pins[0], f.models["io33"])
+    return got.warnings[0]
+
+
 @case("IBIS_NO_SLOPE")
 def _(env):
     from pinlib.library.ibis import parse_ibis

@@ -64,6 +64,7 @@ def _listing(ibis) -> None:
 
 def run_import(args, load_library, default_folder) -> int:
     from pinlib.core.quantity import parse
+    from pinlib.engines.ibisdriver import output_corners
     from pinlib.library.ibis import read_ibis
     from pinlib.library.ibisimport import import_part
 
@@ -79,8 +80,12 @@ def run_import(args, load_library, default_folder) -> int:
     i_ol = None if args.i_ol is None else parse(args.i_ol, "A", field="--i-ol")
     folder = Path(args.into) if args.into else default_folder(args)
     lib = load_library(args)
+    found: list[str] = []
     path = import_part(lib, ibis, args.component, pins, args.part_id, folder,
-                       category=args.category, extends=args.extends, i_ol=i_ol)
+                       category=args.category, extends=args.extends, i_ol=i_ol,
+                       outputs=output_corners, warnings=found)
+    for text in found:
+        print(f"warning: {text}", file=sys.stderr)
     print(f"created {path} from [Component] {args.component} of {args.file}")
     known = [f.resolve() for f in lib.folders]
     if folder.resolve() not in known:

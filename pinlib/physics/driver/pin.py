@@ -127,7 +127,8 @@ def _fast_driver(pin, vdd_f: float, slow: Driver) -> Driver | None:
 
     Built as the slow corner is, from the corner's ``r_out`` and ``edges`` and the pin's
     output levels; a direction without edge points of its own keeps the slow corner's
-    ramp (a stronger output with the same ramp), and a note says so.
+    ramp (a stronger output with the same ramp) and, without a corner ``r_out``, the slow
+    corner's ``r_out`` too; a note says so.
     """
     corner = getattr(pin, "fast", None)
     if corner is None:
@@ -137,14 +138,21 @@ def _fast_driver(pin, vdd_f: float, slow: Driver) -> Driver | None:
     model = driver_from_pin(view, vdd_f)
     basis = dict(model.basis)
     ramps = {}
-    notes = [n for n in model.notes if "no edge points" not in n]
+    notes = [n for n in model.notes if "no edge points" not in n
+             and "no r_out, edges or output levels" not in n]
     for which in ("rise", "fall"):
-        key = f"t_ramp_{which}"
-        if basis[key] == "default":
-            ramps[key] = getattr(slow, key)
-            basis[key] = "slow corner"
-            notes.append(f"{which}: no edge points of the fast corner; the slow corner's "
-                         f"ramp {_fmt(ramps[key], 's')} kept")
+        key, r_key = f"t_ramp_{which}", ("r_rise" if which == "rise" else "r_fall")
+        if basis[key] != "default":
+            continue
+        ramps[key] = getattr(slow, key)
+        basis[key] = "slow corner"
+        kept = f"ramp {_fmt(ramps[key], 's')}"
+        if corner.r_out is None:
+            ramps[r_key] = getattr(slow, r_key)
+            basis[r_key] = "slow corner"
+            kept = f"r_out {_fmt(ramps[r_key], 'Ω')} and " + kept
+        notes.append(f"{which}: no edge points of the fast corner; the slow corner's "
+                     f"{kept} kept")
     notes = tuple(f"fast corner: {n}" for n in notes)
     return replace(model, basis=basis, notes=notes, **ramps)
 
