@@ -2516,6 +2516,14 @@ def _(env):
     return got.warnings[0]
 
 
+@case("IBIS_NO_GUESS", M.IBIS_NO_GUESS.format(component="DEMO-IO"))
+def _(env):
+    from tests.test_ibis import ibis_text
+    pins = "[Pin]  signal_name  model_name\n1      IRQ          io33\n"
+    path = env.write("x.ibs", ibis_text(pins=pins, edges=""))
+    return env.cli("parts", "import", str(path), "--component", "DEMO-IO")
+
+
 @case("IBIS_NO_SLOPE")
 def _(env):
     from pinlib.library.ibis import parse_ibis

@@ -453,6 +453,7 @@ IBIS_UNKNOWN_COMPONENT = "no such component in the file"
 IBIS_PIN_MAPPING = "not a pin mapping"
 IBIS_CURRENT_OUTSIDE_TABLE = "the table does not reach this current"
 IBIS_NO_SLOPE = "too few rows near the rail to take the table's slope"
+IBIS_NO_GUESS = "no signal name of [Component] {component} suggests a pin function"
 IBIS_FIT_POOR = ("pin {pin}, {edge} ({corner}): the driver model misses the waveforms by "
                  "{residual} of the swing (RMS), more than {limit} (common practice, no "
                  "source); its edges are approximate")

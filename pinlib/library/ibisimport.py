@@ -111,7 +111,7 @@ def part_text(ibis: IbisFile, component: str, pins: dict[str, str], new_id: str,
         lines.append(f"extends = {_toml_string(extends)}")
     lines.append(f"provenance = {{ basis = \"ibis\", source = {_toml_string(source)}, "
                  f"recorded = {_dt.date.today().isoformat()} }}")
-    body, supply = [], None
+    body, supply, used = [], None, set()
     for pin, function in pins.items():
         if function not in PIN_FUNCTIONS:
             raise LibraryError(M.NOT_ALLOWED_VALUE, field="--pin", value=f"{pin}={function}",
@@ -135,6 +135,9 @@ def part_text(ibis: IbisFile, component: str, pins: dict[str, str], new_id: str,
             if warnings is not None:
                 warnings.extend(corners.warnings)
         key = function.split("-")[-1] if function != "gpio" else pin.lower()
+        if key in used:  # a second pin of one function (CS0, CS1): named after itself
+            key = pin.lower()
+        used.add(key)
         head = f"pins.{_toml_key(key)}"
         body += ["", f"[{head}]", f"function = {_toml_string(function)}",
                  f"drive = {_toml_string(drive)}"]
