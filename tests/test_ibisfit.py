@@ -8,6 +8,7 @@ test itself (trapezoidal rule, below), so the fit must give back the model.
 
 from __future__ import annotations
 
+import functools
 import json
 from pathlib import Path
 
@@ -48,9 +49,20 @@ REL = 1e-3
 def integrate(edge, rf, vf, cf, *, bump=0.0):
     """The pin voltage of each column's model into one fixture: rows 't typ min max'.
 
+    ``bump`` adds a known disturbance (volts, a sine over the record) to spoil the fit.
+    """
+    t, v = _integrated(edge, rf, vf, cf)
+    shown = v + bump * np.sin(2 * np.pi * t / T_END)[:, None]
+    return "\n".join(f"{tk:.7e} " + " ".join(f"{x:.7e}" for x in row)
+                     for tk, row in zip(t, shown, strict=True))
+
+
+@functools.cache
+def _integrated(edge, rf, vf, cf):
+    """Times and the pin voltage of each column (rows), every EVERY steps.
+
     C dv/dt = (Vs(t) - v) / r + (vf - v) / rf, with Vs ramping from one rail to the
     other from T_START; the pin starts settled with the other half of the output on.
-    ``bump`` adds a known disturbance (volts, a sine over the record) to spoil the fit.
     """
     p = {k: np.array([MODEL[c][k] for c in COLUMNS]) for k in MODEL["typ"]}
     r = p["r_rise"] if edge == "rise" else p["r_fall"]
@@ -61,7 +73,7 @@ def integrate(edge, rf, vf, cf, *, bump=0.0):
     v = (v_from / r_other + vf / rf) / (1 / r_other + 1 / rf)
     b = (1 / r + 1 / rf) / c
     n = int(round(T_END / STEP))
-    rows = []
+    times, rows = [], []
 
     def drive(t):
         s = np.clip((t - T_START) / t_ramp, 0.0, 1.0)
@@ -70,13 +82,13 @@ def integrate(edge, rf, vf, cf, *, bump=0.0):
     for k in range(n + 1):
         t = k * STEP
         if k % EVERY == 0:
-            shown = v + bump * np.sin(2 * np.pi * t / T_END)
-            rows.append(f"{t:.7e} " + " ".join(f"{x:.7e}" for x in shown))
+            times.append(t)
+            rows.append(v.copy())
         if t < T_START:
             continue
         a0, a1 = drive(t), drive(t + STEP)
         v = (v * (1 - STEP * b / 2) + STEP / 2 * (a0 + a1)) / (1 + STEP * b / 2)
-    return "\n".join(rows)
+    return np.array(times), np.array(rows)
 
 
 def waveforms(*, bump=0.0):
@@ -230,3 +242,48 @@ def test_imported_corners_on_a_test_line(tmp_path, capsys, waves_text):
     assert late["both"] > late["fast"]
     checks = json.dumps([c.message for c in both.result.checks])
     assert "(fast corner)" in checks and "(slow corner)" in checks
+
+
+SPI_PINS = ("[Pin]  signal_name  model_name\n"
+            "1      SPI_SCK      io33\n"
+            "2      MOSI         io33\n"
+            "3      nCS          io33\n"
+            "4      MISO         io33\n"
+            "5      VDD          POWER\n")
+
+SPI_DESIGN = """format = "pinlib.design/1"
+title = "imported controller on a test line (invented)"
+library = ["{data}", "{parts}"]
+
+[[bus]]
+id = "s"
+protocol = "spi"
+clock = "20 MHz"
+supply = "3.3 V"
+devices = [
+  {{ ref = "U1", part = "demo-spi", role = "controller" }},
+  {{ ref = "U2", part = "pp-periph" }},
+]
+lines.sclk = {{ length = "15 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }}
+lines.copi = {{ length = "15 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }}
+lines.cipo = {{ length = "15 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }}
+"""
+
+
+@pytest.mark.parametrize("study", [[], ["--corners"]])
+def test_an_imported_spi_controller_is_checked_in_a_design(tmp_path, capsys, waves_text, study):
+    ibs = tmp_path / "invented.ibs"
+    ibs.write_text(ibis_text(pins=SPI_PINS, edges=waves_text, cref="15pF"))
+    parts = tmp_path / "parts"
+    assert main(["parts", "import", str(ibs), "--component", "DEMO-IO", "--id", "demo-spi",
+                 "--into", str(parts), "--category", "controller", "--yes"]) == 0
+    design = tmp_path / "d.toml"
+    design.write_text(SPI_DESIGN.format(data=DATA.as_posix(), parts=parts.as_posix()))
+    capsys.readouterr()
+    code = main(["check", str(design), "--json", *study])
+    out = capsys.readouterr().out
+    assert code in (0, 1), out
+    result = json.loads(out)
+    sclk = next(ln for ln in result["buses"][0]["lines"] if ln["signal"] == "sclk")
+    messages = " ".join(c["message"] for c in sclk["checks"])
+    assert "(fast corner)" in messages and "(slow corner)" in messages

@@ -11,6 +11,10 @@ file states a driver (``edges``).  IBIS's ``min`` column is the slow corner (wea
 process, low supply, hot) and ``max`` the fast one: :func:`output_corners` gives the
 part file's slow corner from ``min`` and its fast corner from ``max``, with ``typ``
 beside each value.
+
+Left out of the fit: a fixture's ``L_fixture`` and the package terms a waveform may name
+(``R_dut``, ``L_dut``, ``C_dut``), the clamps, and the shape of the current-voltage
+tables (the model is one resistance per edge); the residual shows what that costs.
 """
 
 from __future__ import annotations
