@@ -117,3 +117,12 @@ def test_fast_corner_r_out_has_the_plausible_range(tmp_path):
     problems = part_warnings(lib.parts["odd"], lib)
     # common practice, no source: r_out 1 ohm to 1 kohm (plausible.RANGES)
     assert [p.field for p in problems] == ["pins.sclk.fast.r_out"]
+
+
+def test_a_fast_corner_weaker_than_the_slow_one_is_a_problem(tmp_path):
+    text = HEAD.format(id="swapped") + 'r_out = "12 Ω"\nfast = { r_out = "40 Ω" }\n'
+    (tmp_path / "swapped.toml").write_text(text, encoding="utf-8")
+    lib = load_library([tmp_path], builtin=False, env=False)
+    (problem,) = part_warnings(lib.parts["swapped"], lib)
+    assert problem.field == "pins.sclk.fast.r_out" and "swapped" in problem.message
+    assert problem.line == 13  # the line of the fast corner (HEAD is 11 lines, r_out 12)

@@ -531,6 +531,25 @@ def _(env):
     return _implausible(env).message
 
 
+def _swapped_corners(env):
+    from pinlib.library.plausible import part_warnings
+
+    pin = '"8 pF"\nr_out = "12 Ω"\nfast = { r_out = "40 Ω" }'
+    lib = env.part(_pin_value(pin).replace('"open-drain"', '"push-pull"', 1))
+    (got,) = part_warnings(lib.get("p"), lib)
+    return got
+
+
+@case("FAST_CORNER_WEAKER", M.FAST_CORNER_WEAKER.format(slow="12 Ω"))
+def _(env):
+    return _swapped_corners(env).message
+
+
+@case("FAST_CORNER_RULE")
+def _(env):
+    return _swapped_corners(env).expected
+
+
 # 13.21: pinlib measured (pinlib/engines/bench.py and its command)
 _BENCH_BUS = I2C_BUS.replace('supply = "3.3 V"\n', 'supply = "3.3 V"\npullup = "2.2 kΩ"\n', 1)
 

@@ -113,6 +113,8 @@ SOURCE_NOT_TEXT = "a source must be text"
 # plausible.py (warnings: the part still loads)
 IMPLAUSIBLE_VALUE = "an implausible value for this field"
 PLAUSIBLE_RANGE = "{range} (common practice, no source)"
+FAST_CORNER_WEAKER = "the fast corner's r_out is above the slow corner's {slow}: corners swapped?"
+FAST_CORNER_RULE = "a fast corner's r_out at most the pin's own r_out (the slow corner)"
 LINE_VALUES_DISAGREE = ("capacitance, delay and impedance disagree: impedance x capacitance "
                         "gives {implied} against the delay {delay} ({off})")
 LINE_AGREEMENT_RULE = ("impedance x capacitance within {pct} of the delay (lossless line: "
