@@ -531,6 +531,25 @@ def _(env):
     return _implausible(env).message
 
 
+def _swapped_corners(env):
+    from pinlib.library.plausible import part_warnings
+
+    pin = '"8 pF"\nr_out = "12 Ω"\nfast = { r_out = "40 Ω" }'
+    lib = env.part(_pin_value(pin).replace('"open-drain"', '"push-pull"', 1))
+    (got,) = part_warnings(lib.get("p"), lib)
+    return got
+
+
+@case("FAST_CORNER_WEAKER", M.FAST_CORNER_WEAKER.format(slow="12 Ω"))
+def _(env):
+    return _swapped_corners(env).message
+
+
+@case("FAST_CORNER_RULE")
+def _(env):
+    return _swapped_corners(env).expected
+
+
 # 13.21: pinlib measured (pinlib/engines/bench.py and its command)
 _BENCH_BUS = I2C_BUS.replace('supply = "3.3 V"\n', 'supply = "3.3 V"\npullup = "2.2 kΩ"\n', 1)
 
@@ -621,6 +640,17 @@ def _pin_value(text: str) -> str:
 @case("EDGE_NEEDS_RISE_OR_FALL")
 def _(env):
     return _fails(lambda e: e.part(_pin_value('"8 pF"\nedges = [{ load = "15 pF" }]')), env)
+
+
+@case("FAST_CORNER_EMPTY")
+def _(env):
+    return _fails(lambda e: e.part(_pin_value('"8 pF"\nfast = { description = "x" }')
+                                   .replace('"open-drain"', '"push-pull"', 1)), env)
+
+
+@case("FAST_CORNER_NEEDS_PUSH_PULL", M.FAST_CORNER_NEEDS_PUSH_PULL.format(drive="open-drain"))
+def _(env):
+    return _fails(lambda e: e.part(_pin_value('"8 pF"\nfast = { r_out = "12 Ω" }')), env)
 
 
 @case("SUPPLY_MAX_BELOW_MIN", M.SUPPLY_MAX_BELOW_MIN.format(max="2 V", min="3 V"))
@@ -2500,6 +2530,25 @@ def _(env):
     from tests.test_ibis import ibis_text
     return _fails(lambda e: derive_pin(parse_ibis(ibis_text()), "DEMO-IO", "SDA",
                                        drive="open-drain", i_ol=5.0), env)
+
+
+@case("IBIS_FIT_POOR", lambda: M.IBIS_FIT_POOR.split("{limit}")[1])
+def _(env):
+    from pinlib.engines.ibisdriver import output_corners
+    from pinlib.library.ibis import parse_ibis
+    from tests.test_ibis import ibis_text
+    from tests.test_ibisfit import waveforms
+    f = parse_ibis(ibis_text(edges=waveforms(bump=0.4)))
+    got = output_corners(f, f.components["DEMO-IO"].pins[0], f.models["io33"])
+    return got.warnings[0]
+
+
+@case("IBIS_NO_GUESS", M.IBIS_NO_GUESS.format(component="DEMO-IO"))
+def _(env):
+    from tests.test_ibis import ibis_text
+    pins = "[Pin]  signal_name  model_name\n1      IRQ          io33\n"
+    path = env.write("x.ibs", ibis_text(pins=pins, edges=""))
+    return env.cli("parts", "import", str(path), "--component", "DEMO-IO")
 
 
 @case("IBIS_NO_SLOPE")

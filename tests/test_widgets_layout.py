@@ -32,6 +32,7 @@ from pinlib.core.errors import InputError  # noqa: E402
 from pinlib.library import load_library  # noqa: E402
 from pinlib.present.widgets import (  # noqa: E402
     BusBuilder,
+    IbisImporter,
     LineExplorer,
     PartRecorder,
     SpiBudget,
@@ -54,8 +55,18 @@ def panels(library, tmp_path_factory):
         "LineExplorer": LineExplorer(library, length=0.28),
         "SpiBudget": SpiBudget(DEMO, bus="display"),
         "PartRecorder": PartRecorder(tmp_path_factory.mktemp("team") / "team"),
+        "IbisImporter": _importer(tmp_path_factory.mktemp("ibis")),
         "SwapExplorer": SwapExplorer(DEMO),
     }
+
+
+def _importer(folder):
+    """An IBIS import panel with a file read and a component chosen (its pin rows shown)."""
+    from test_ibis import ibis_text
+
+    (folder / "invented.ibs").write_text(ibis_text(edges=""))
+    return IbisImporter(folder / "team").set(file=str(folder / "invented.ibs"),
+                                             component="DEMO-IO")
 
 
 def _tree(widget) -> list:
@@ -80,7 +91,7 @@ def _attributes(panel) -> list:
 
 
 @pytest.mark.parametrize("name", ["BusBuilder", "LineExplorer", "SpiBudget", "PartRecorder",
-                                  "SwapExplorer"])
+                                  "IbisImporter", "SwapExplorer"])
 def test_no_two_widgets_share_a_layout_object(panels, name):
     panel = panels[name]
     widgets = [w for w in _tree(panel.widget) if hasattr(w, "layout")]
@@ -94,7 +105,7 @@ def test_no_two_widgets_share_a_layout_object(panels, name):
 
 
 @pytest.mark.parametrize("name", ["BusBuilder", "LineExplorer", "SpiBudget", "PartRecorder",
-                                  "SwapExplorer"])
+                                  "IbisImporter", "SwapExplorer"])
 def test_every_control_of_a_panel_is_in_its_widget_tree(panels, name):
     panel = panels[name]
     tree = {id(w) for w in _tree(panel.widget)}

@@ -98,6 +98,9 @@ LIBRARY_TOO_MANY_FILES = "the library folder holds more than {limit:,} part file
 LINK_OUT_OF_LIBRARY = "a link out of the library folder is not followed"
 # schema.py (pydantic validators: the loader removes pydantic's "Value error, ")
 EDGE_NEEDS_RISE_OR_FALL = "an edge point needs rise or fall (or both)"
+FAST_CORNER_EMPTY = "a fast corner needs r_out or edges (or both)"
+FAST_CORNER_NEEDS_PUSH_PULL = ("a fast corner belongs to a push-pull output; this pin's drive "
+                               "is {drive}")
 SUPPLY_MAX_BELOW_MIN = "supply max {max} is below min {min}"
 SUPPLY_MIN_NOT_POSITIVE = "the supply min must be above 0 V"
 BRIDGE_BOTH_SIDES = "a bridging part describes both sides, [sides.a] and [sides.b]"
@@ -110,6 +113,8 @@ SOURCE_NOT_TEXT = "a source must be text"
 # plausible.py (warnings: the part still loads)
 IMPLAUSIBLE_VALUE = "an implausible value for this field"
 PLAUSIBLE_RANGE = "{range} (common practice, no source)"
+FAST_CORNER_WEAKER = "the fast corner's r_out is above the slow corner's {slow}: corners swapped?"
+FAST_CORNER_RULE = "a fast corner's r_out at most the pin's own r_out (the slow corner)"
 LINE_VALUES_DISAGREE = ("capacitance, delay and impedance disagree: impedance x capacitance "
                         "gives {implied} against the delay {delay} ({off})")
 LINE_AGREEMENT_RULE = ("impedance x capacitance within {pct} of the delay (lossless line: "
@@ -452,6 +457,10 @@ IBIS_UNKNOWN_COMPONENT = "no such component in the file"
 IBIS_PIN_MAPPING = "not a pin mapping"
 IBIS_CURRENT_OUTSIDE_TABLE = "the table does not reach this current"
 IBIS_NO_SLOPE = "too few rows near the rail to take the table's slope"
+IBIS_NO_GUESS = "no signal name of [Component] {component} suggests a pin function"
+IBIS_FIT_POOR = ("pin {pin}, {edge} ({corner}): the driver model misses the waveforms by "
+                 "{residual} of the swing (RMS), more than {limit} (common practice, no "
+                 "source); its edges are approximate")
 
 #: The modules whose raise sites, warnings and report sentences take their texts from here.
 MODULES = (

@@ -11,6 +11,8 @@ under :func:`pinlib.core.tomlfile.file_lock`, by :func:`pinlib.core.tomlfile.ato
 from __future__ import annotations
 
 import datetime as _dt
+from collections.abc import Callable
+from dataclasses import dataclass
 from pathlib import Path
 
 from pinlib.core import messages as M
@@ -30,13 +32,38 @@ from pinlib.library.record import (
 )
 from pinlib.library.schema import CATEGORIES, FORMAT
 
-__all__ = ["OPEN_DRAIN_FUNCTIONS", "part_text", "import_part"]
+__all__ = ["OPEN_DRAIN_FUNCTIONS", "CornerEdges", "OutputCorners", "part_text",
+           "import_part"]
 
 #: Pin functions of open-drain buses: a driving model serves them as an open-drain sink.
 OPEN_DRAIN_FUNCTIONS = tuple(fn for p in PROTOCOLS.values() if p.open_drain
                              for fn in p.functions)
 
 _ORDER = ("c_in", "v_il", "v_ih", "v_ol", "i_ol", "r_out")
+
+
+@dataclass(frozen=True)
+class CornerEdges:
+    """One corner of an output as edge points: rows of ``{"load", "rise", "rise_typ",
+    "fall", "fall_typ"}`` (SI) and the source of each edge's values."""
+
+    rows: tuple[dict, ...]
+    sources: dict[str, str]
+
+
+@dataclass(frozen=True)
+class OutputCorners:
+    """A push-pull output's slow corner (the pin's ``edges``) and fast corner (its
+    ``fast.edges``, None when the file gives none), and the fit's warnings."""
+
+    slow: CornerEdges
+    fast: CornerEdges | None
+    warnings: tuple[str, ...] = ()
+
+
+#: What works out a push-pull pin's corners: ``(ibis, pin, model, c_package)`` ->
+#: :class:`OutputCorners` or None (the engines' fit, :mod:`pinlib.engines.ibisdriver`).
+Outputs = Callable[..., "OutputCorners | None"]
 
 
 def _value(d: Derived) -> str:
@@ -58,8 +85,14 @@ def _drive(ibis: IbisFile, component: str, pin: str, function: str) -> str:
 
 def part_text(ibis: IbisFile, component: str, pins: dict[str, str], new_id: str, *,
               category: str = "logic", extends: str | None = None,
-              i_ol: float | None = None) -> str:
-    """The TOML text of the part: ``pins`` maps an IBIS pin (name or signal) to a function."""
+              i_ol: float | None = None, outputs: Outputs | None = None,
+              warnings: list | None = None) -> str:
+    """The TOML text of the part: ``pins`` maps an IBIS pin (name or signal) to a function.
+
+    ``outputs`` works out a push-pull pin's slow and fast corners as edge points; where
+    it gives them they replace the ``r_out`` of the pull-up and pull-down tables (the
+    engine fits its driver to the edges).  Its warnings are appended to ``warnings``.
+    """
     if component not in ibis.components:
         raise LibraryError(M.IBIS_UNKNOWN_COMPONENT, file=ibis.path, field="--component",
                            value=component, expected="one of " + ", ".join(ibis.components))
@@ -78,7 +111,7 @@ def part_text(ibis: IbisFile, component: str, pins: dict[str, str], new_id: str,
         lines.append(f"extends = {_toml_string(extends)}")
     lines.append(f"provenance = {{ basis = \"ibis\", source = {_toml_string(source)}, "
                  f"recorded = {_dt.date.today().isoformat()} }}")
-    body, supply = [], None
+    body, supply, used = [], None, set()
     for pin, function in pins.items():
         if function not in PIN_FUNCTIONS:
             raise LibraryError(M.NOT_ALLOWED_VALUE, field="--pin", value=f"{pin}={function}",
@@ -92,13 +125,86 @@ def part_text(ibis: IbisFile, component: str, pins: dict[str, str], new_id: str,
         if "v_ol" in values:
             values["i_ol"] = Derived("i_ol", i_ol, "A", values["v_ol"].source,
                                      "the current v_ol was read at (--i-ol)")
+        corners = None
+        if drive == "push-pull" and outputs is not None:
+            entry = _entry(ibis, component, pin)
+            corners = outputs(ibis, entry, _model_of(ibis, entry),
+                              _c_package(ibis, component, entry))
+        if corners is not None:
+            values.pop("r_out", None)
+            if warnings is not None:
+                warnings.extend(corners.warnings)
         key = function.split("-")[-1] if function != "gpio" else pin.lower()
-        body += ["", f"[pins.{_toml_key(key)}]", f"function = {_toml_string(function)}",
+        if key in used:  # a second pin of one function (CS0, CS1): named after itself
+            key = pin.lower()
+        used.add(key)
+        head = f"pins.{_toml_key(key)}"
+        body += ["", f"[{head}]", f"function = {_toml_string(function)}",
                  f"drive = {_toml_string(drive)}"]
         body += [f"{f} = {_value(values[f])}" for f in _ORDER if f in values]
+        if corners is not None:
+            body += _edges_lines(corners.slow)
+            if corners.fast is not None:
+                body += ["", f"[{head}.fast]"] + _edges_lines(corners.fast)
     model, vr = supply
     lines.append(_supply_line(ibis, model, vr))
+    body += _timing_lines(ibis, component, pins)
     return "\n".join(lines + body) + "\n"
+
+
+def _entry(ibis: IbisFile, component: str, pin: str):
+    return next(p for p in ibis.components[component].pins if pin in (p.name, p.signal))
+
+
+def _c_package(ibis: IbisFile, component: str, entry) -> float:
+    """The pin's package capacitance: its C_pin, else the package's typical C_pkg."""
+    if entry.c_pin is not None:
+        return entry.c_pin
+    pkg = ibis.components[component].package.get("c_pkg")
+    return pkg.typ if pkg is not None else 0.0
+
+
+def _edge_value(value: float, typ, source: str) -> str:
+    t = f", typ = {_toml_string(format_si(typ, 's', 6))}" if typ is not None else ""
+    return (f"{{ value = {_toml_string(format_si(value, 's', 6))}{t}, basis = \"ibis\", "
+            f"source = {_toml_string(source)} }}")
+
+
+def _edges_lines(corner: CornerEdges) -> list[str]:
+    out = ["edges = ["]
+    for row in corner.rows:
+        parts = [f"load = {_toml_string(format_si(row['load'], 'F'))}"]
+        for edge in ("rise", "fall"):
+            if row.get(edge) is not None:
+                parts.append(f"{edge} = " + _edge_value(row[edge], row.get(f"{edge}_typ"),
+                                                        corner.sources[edge]))
+        out.append("  { " + ", ".join(parts) + ", levels = \"10-90\" },")
+    return out + ["]"]
+
+
+def _timing_lines(ibis: IbisFile, component: str, pins: dict[str, str]) -> list[str]:
+    """``test_load`` from the Cref of the first mapped output's model that states one."""
+    for pin in pins:
+        entry = next((p for p in ibis.components[component].pins
+                      if pin in (p.name, p.signal)), None)
+        if entry is None or entry.model.upper() in ("POWER", "GND", "NC"):
+            continue
+        model = _model_of(ibis, entry)
+        kind = model.model_type.lower()
+        if "cref" not in model.params or kind.startswith("input") or kind == "terminator":
+            continue
+        name = ibis.header.get("file name", "") or Path(ibis.path).name
+        extra = [f"{k} {format_si(float(model.params[p]), u)}"
+                 for k, p, u in (("Rref", "rref", "Ω"), ("Vref", "vref", "V"),
+                                 ("Vmeas", "vmeas", "V")) if p in model.params]
+        src = (f"{name} rev {ibis.file_rev}, [Model] {model.name}, Cref (the load its "
+               "timing is stated into"
+               + ("; " + ", ".join(extra) + ": not held by the part format, whose test_load "
+                  "is a capacitance" if extra else "") + ")")
+        value = format_si(float(model.params["cref"]), "F")
+        return ["", "[timing]", f"test_load = {{ value = {_toml_string(value)}, "
+                f"basis = \"ibis\", source = {_toml_string(src)} }}"]
+    return []
 
 
 def _supply_line(ibis, model, vr) -> str:

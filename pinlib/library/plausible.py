@@ -119,6 +119,19 @@ def part_warnings(part: Part, lib=None, *, own_only: bool = False) -> list[Libra
                 value = getattr(pin, field)
                 if isinstance(value, Sourced):
                     _add(prefix + (name, field), value, field, pin.drive, ends)
+            if pin.fast is not None and pin.fast.r_out is not None:
+                _add(prefix + (name, "fast", "r_out"), pin.fast.r_out, "r_out", pin.drive)
+                _corners(prefix + (name, "fast", "r_out"), pin)
+
+    def _corners(path, pin) -> None:
+        fast, slow = pin.fast.r_out, pin.r_out
+        if slow is None or (own_only and fast.origin not in (None, part.id)):
+            return
+        if float(fast.value) > float(slow.value):
+            out.append(LibraryError(M.FAST_CORNER_WEAKER.format(slow=slow.text),
+                                    field=".".join(map(str, path)), value=fast.text,
+                                    expected=M.FAST_CORNER_RULE,
+                                    **_where(lib, part.id, fast, path)))
 
     def _add(path, value, field, drive, ends=()):
         if own_only and value.origin not in (None, part.id):

@@ -20,6 +20,7 @@ i_ol       sink current at which v_ol is guaranteed                 A
 v_oh       output high level, min, at i_oh                          V
 i_oh       source current at which v_oh is guaranteed               A
 r_out      output resistance of a push-pull driver                  Ω
+fast       a push-pull output's fast corner: its own r_out, edges
 abs_max    absolute maximum input voltage                           V
 pullup     a pull-up resistor the part carries on this pin          Ω
 t_valid    clock edge to output valid, max (SPI)                    s
@@ -49,6 +50,7 @@ __all__ = [
     "FUNCTIONS",
     "DRIVES",
     "Edge",
+    "FastCorner",
     "Pin",
     "Timing",
     "Supply",
@@ -108,6 +110,24 @@ class Edge(_Model):
         return self
 
 
+class FastCorner(_Model):
+    """A push-pull output's fast corner (strongest drive, quickest edges).
+
+    The pin's own ``r_out`` and ``edges`` are the slow corner, which sets edge times and
+    timing; this corner sets overshoot, undershoot and ringing.
+    """
+
+    r_out: Resistance | None = None
+    edges: tuple[Edge, ...] = ()
+    description: str | None = None
+
+    @model_validator(mode="after")
+    def _r_out_or_edges(self):
+        if self.r_out is None and not self.edges:
+            raise ValueError(M.FAST_CORNER_EMPTY)
+        return self
+
+
 class Pin(_Model):
     """One pin of a part class."""
 
@@ -124,6 +144,7 @@ class Pin(_Model):
     i_oh: Current | None = None
     r_out: Resistance | None = None
     edges: tuple[Edge, ...] = ()
+    fast: FastCorner | None = None
     abs_max: Level | None = None
     pullup: Resistance | None = None
     pullup_internal: Resistance | None = None  # present only when the design enables it
@@ -131,6 +152,12 @@ class Pin(_Model):
     t_of_min: Time | None = None  # output fall time of a slope-controlled open-drain stage
     t_of_max: Time | None = None
     description: str | None = None
+
+    @model_validator(mode="after")
+    def _fast_on_push_pull(self):
+        if self.fast is not None and self.drive != "push-pull":
+            raise ValueError(M.FAST_CORNER_NEEDS_PUSH_PULL.format(drive=self.drive))
+        return self
 
 
 class Timing(_Model):

@@ -7,7 +7,7 @@ import sys
 from pathlib import Path
 
 from pinlib.core import messages as M
-from pinlib.core.errors import InputError
+from pinlib.core.errors import InputError, LibraryError
 
 __all__ = ["EXAMPLES", "add_arguments", "run_import"]
 
@@ -17,8 +17,13 @@ examples:
   pinlib parts import buffer.ibs --component DEMO-IO --pin SDA=i2c-sda --pin SCL=i2c-scl \\
       --id demo-io --into parts --i-ol 3mA
 
+  pinlib parts import buffer.ibs --component DEMO-IO   (guess the pins' functions)
+  pinlib parts import buffer.ibs --component DEMO-IO --id demo-io --into parts --yes
+
 --pin maps an IBIS pin (its name or signal name) to a pin function; each value written
 carries basis "ibis" and names the file, its revision, the [Model] and the corner used.
+Without --pin the functions are guessed from the signal names and shown; nothing is
+written until --yes accepts the guess (or the --pin list shown is given).
 Built-in parts are never written.
 """
 
@@ -34,6 +39,8 @@ def add_arguments(p) -> None:
     p.add_argument("--extends", metavar="CLASS", help="a class the part extends")
     p.add_argument("--i-ol", dest="i_ol", metavar="CURRENT",
                    help="the sink current at which an open-drain pin's v_ol is read, e.g. 3mA")
+    p.add_argument("--yes", action="store_true",
+                   help="without --pin: write the part with the guessed pin functions")
 
 
 def _mapping(items) -> dict[str, str]:
@@ -62,8 +69,36 @@ def _listing(ibis) -> None:
               + (f", {vr.typ:g} V" if vr is not None else ""))
 
 
+def _guess(ibis, component: str, file: str) -> dict[str, str]:
+    """The pin functions guessed from the component's signal names, printed with the
+    --pin list that writes them."""
+    from pinlib.library.pinguess import guess_function
+
+    if component not in ibis.components:
+        raise LibraryError(M.IBIS_UNKNOWN_COMPONENT, file=ibis.path, field="--component",
+                           value=component, expected="one of " + ", ".join(ibis.components))
+    pins = [p for p in ibis.components[component].pins
+            if p.model.upper() not in ("POWER", "GND", "NC")]
+    signals = [p.signal for p in pins]
+    guess = {}
+    print(f"pin functions guessed from the signal names of [Component] {component}:")
+    for pin in pins:
+        fn = guess_function(pin.signal)
+        print(f"  pin {pin.name:<6} {pin.signal:<16} {fn or '(no guess)'}")
+        if fn is not None:
+            guess[pin.signal if signals.count(pin.signal) == 1 else pin.name] = fn
+    if not guess:
+        raise InputError(M.IBIS_NO_GUESS.format(component=component), field="--pin",
+                         expected="--pin PIN=FUNCTION, e.g. SDA=i2c-sda")
+    mapping = " ".join(f"--pin {k}={v}" for k, v in guess.items())
+    print(f"to write the part, add --yes (with --id and --into), or give the mapping:\n"
+          f"  pinlib parts import {file} --component {component} {mapping} --id ID")
+    return guess
+
+
 def run_import(args, load_library, default_folder) -> int:
     from pinlib.core.quantity import parse
+    from pinlib.engines.ibisdriver import output_corners
     from pinlib.library.ibis import read_ibis
     from pinlib.library.ibisimport import import_part
 
@@ -72,6 +107,10 @@ def run_import(args, load_library, default_folder) -> int:
         _listing(ibis)
         return 0
     pins = _mapping(args.pin)
+    if not pins:
+        pins = _guess(ibis, args.component, args.file)
+        if not args.yes:
+            return 0
     if not pins or not args.part_id:
         raise InputError(M.IBIS_PIN_MAPPING, field="--pin" if not pins else "--id",
                          expected="--component NAME with --pin PIN=FUNCTION (one or more) "
@@ -79,8 +118,12 @@ def run_import(args, load_library, default_folder) -> int:
     i_ol = None if args.i_ol is None else parse(args.i_ol, "A", field="--i-ol")
     folder = Path(args.into) if args.into else default_folder(args)
     lib = load_library(args)
+    found: list[str] = []
     path = import_part(lib, ibis, args.component, pins, args.part_id, folder,
-                       category=args.category, extends=args.extends, i_ol=i_ol)
+                       category=args.category, extends=args.extends, i_ol=i_ol,
+                       outputs=output_corners, warnings=found)
+    for text in found:
+        print(f"warning: {text}", file=sys.stderr)
     print(f"created {path} from [Component] {args.component} of {args.file}")
     known = [f.resolve() for f in lib.folders]
     if folder.resolve() not in known:

@@ -124,6 +124,6 @@ def _figures_of(cases: dict) -> dict:
     return {
         "edge_rise_time": max(c.rise.t_edge for c in cases.values()),
         "edge_fall_time": max(c.fall.t_edge for c in cases.values()),
-        "overshoot": max(c.rise.overshoot for c in cases.values()),
-        "undershoot": max(c.fall.undershoot for c in cases.values()),
+        "overshoot": max(c.si_wave("rise").overshoot for c in cases.values()),
+        "undershoot": max(c.si_wave("fall").undershoot for c in cases.values()),
     }

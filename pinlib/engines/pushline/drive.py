@@ -10,7 +10,7 @@ from dataclasses import dataclass
 from pinlib.core.errors import PinlibError
 from pinlib.engines.pushline.pins import Endpoint, Flight
 from pinlib.engines.pushline.rules import _REF_LEVEL
-from pinlib.engines.pushline.sections import Stretch, needs_distributed
+from pinlib.engines.pushline.sections import Stretch, line_model, needs_distributed
 from pinlib.engines.pushline.waves import EdgeWave, simulate_edge
 from pinlib.library.schema import Pin
 from pinlib.model.design import Device
@@ -42,6 +42,10 @@ class DriveCase:
         swing into its datasheet ``test_load`` (the reference of its output timing). [s]
     v_low, v_high : float
         Static levels of the line. [V]
+    fast_rise, fast_fall : EdgeWave or None
+        The two edges of the driver's fast corner (``model.fast``), when its part states
+        one: they set overshoot, undershoot and ringing; ``rise`` and ``fall`` (the slow
+        corner) set edge times and timing. [1]
     """
 
     driver: Endpoint
@@ -54,9 +58,18 @@ class DriveCase:
     ref: dict
     v_low: float
     v_high: float
+    fast_rise: EdgeWave | None = None
+    fast_fall: EdgeWave | None = None
 
     def wave(self, edge: str) -> EdgeWave:
+        """The edge of the slow corner (edge time, timing). [1]"""
         return self.rise if edge == "rise" else self.fall
+
+    def si_wave(self, edge: str) -> EdgeWave:
+        """The edge that sets overshoot, undershoot and ringing: the fast corner's, when
+        the driver has one, else :meth:`wave`. [1]"""
+        fast = self.fast_rise if edge == "rise" else self.fast_fall
+        return self.wave(edge) if fast is None else fast
 
     def flight(self, receiver: Endpoint, edge: str) -> Flight:
         """Earliest and latest flight of one edge to a receiver's thresholds. [s]
@@ -128,6 +141,11 @@ def _driver_model(ep: Endpoint, notes: list) -> drv.Driver:
         notes.append(f"{ep.label}: {w.message}")
     for n in model.notes:
         notes.append(f"{ep.label}: {n}")
+    if model.fast is not None:
+        notes.extend(f"{ep.label}: {n}" for n in model.fast.notes)
+        notes.append(f"{ep.label}: fast corner (pins.{ep.pin_name}.fast) used for overshoot, "
+                     "undershoot and ringing; slow corner (r_out, edges) for edge time and "
+                     "timing")
     return model
 
 
@@ -199,4 +217,22 @@ def drive_case(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver
                                              model.r_rise * c_test)),
            "fall": float(rc.ramp_rc_crossing(_REF_LEVEL, model.t_ramp_fall,
                                              model.r_fall * c_test))}
-    return DriveCase(driver, model, rs, c_far, distributed, rise, fall, ref, 0.0, vdd)
+    fast = (None, None) if model.fast is None else _fast_edges(stretches, model.fast, rs,
+                                                                 c_far, vdd, long)
+    return DriveCase(driver, model, rs, c_far, distributed, rise, fall, ref, 0.0, vdd, *fast)
+
+
+def _fast_edges(stretches: Sequence[Stretch], fast: drv.Driver, rs: float, c_far: float,
+                vdd: float, long: bool) -> tuple[EdgeWave, EdgeWave]:
+    """Both edges of a driver's fast corner.  The line is electrically long for them when
+    it is for the slow corner or against the fast corner's own edge into the pins."""
+    alone = min(float(drv.edge_time(fast.r_rise, fast.t_ramp_rise, c_far)),
+                float(drv.edge_time(fast.r_fall, fast.t_ramp_fall, c_far)))
+    long = long or line_model(stretches, alone)[0]
+    distributed = needs_distributed(stretches, min(fast.r_rise, fast.r_fall) + rs, c_far,
+                                    long)
+    rise = simulate_edge(stretches, fast.r_rise + rs, fast.t_ramp_rise, c_far, 0.0, vdd,
+                         distributed=distributed, edge="rise")
+    fall = simulate_edge(stretches, fast.r_fall + rs, fast.t_ramp_fall, c_far, vdd, 0.0,
+                         distributed=distributed, edge="fall")
+    return rise, fall

@@ -44,36 +44,44 @@ def _swing_checks(p: Endpoint, cases: dict, warn: float) -> list[Check]:
     own = [c for ref, c in cases.items() if ref != p.ref]
     if not own:
         return []
-    peak = max(c.rise.v_to + c.rise.overshoot for c in own)
+    peak = max(c.si_wave("rise").v_to + c.si_wave("rise").overshoot for c in own)
     allowed = abs_max - p.vdd
     above = peak - p.vdd
     if abs(above) <= 1e-12 * max(abs(peak), 1.0):
         above = 0.0  # a settled edge at the supply: the difference is float rounding
-    dip = max(c.fall.undershoot - c.fall.v_to for c in own)
+    dip = max(c.si_wave("fall").undershoot - c.si_wave("fall").v_to for c in own)
     low_allowed = min(allowed, UNDERSHOOT_DEFAULT)
+    corner = _corner(own, "fast")
     return [
         check_max(
             "overshoot", above, allowed, "V", p.source("abs_max"),
             f"peak {_fmt(peak, 'V')} at {p.label} against its abs_max {_fmt(abs_max, 'V')} "
             f"at {_fmt(p.vdd, 'V')}: {_fmt(above, 'V')} above its supply, "
-            f"{_fmt(allowed, 'V')} allowed", warn_margin=warn, subject=p.ref,
+            f"{_fmt(allowed, 'V')} allowed{corner}", warn_margin=warn, subject=p.ref,
             details={"peak": peak, "abs_max": abs_max, "supply": p.vdd}),
         check_max(
             "undershoot", dip, low_allowed, "V", f"{UNDERSHOOT_RULE}; {p.source('abs_max')}",
             f"dip to {_fmt(-dip, 'V')} at {p.label}; {_fmt(low_allowed, 'V')} below ground "
-            "allowed", warn_margin=warn, subject=p.ref),
+            f"allowed{corner}", warn_margin=warn, subject=p.ref),
     ]
+
+
+def _corner(cases, which: str) -> str:
+    """`` (fast corner)`` or `` (slow corner)`` when a driver among ``cases`` states a
+    fast corner, else nothing (a part without one reads as before)."""
+    return f" ({which} corner)" if any(c.fast_rise is not None for c in cases) else ""
 
 
 def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
                    clock_line: bool) -> Check:
-    """Re-crossings of VIL/VIH at one receiver over every other driver's edges."""
+    """Re-crossings of VIL/VIH at one receiver over every other driver's edges (the fast
+    corner's, where a driver has one)."""
     counts = {}
     for ref, c in cases.items():
         if ref == rx.ref:
             continue
         for edge in ("rise", "fall"):
-            w = c.wave(edge)
+            w = c.si_wave(edge)
             got = wf.recrossings(w.t, w.v, v_il, v_ih, edge=edge)
             prev = counts.get(edge, (0, 0))
             counts[edge] = (max(prev[0], int(got.entry)), max(prev[1], int(got.opposite)))
@@ -83,12 +91,13 @@ def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
     else:
         status = "fail" if clock_line else "warn"
     what = "double clocking" if clock_line else "a glitch on a data line"
+    corner = _corner([c for ref, c in cases.items() if ref != rx.ref], "fast")
     return Check(
         "ringing", status, total, 0, "", None, _RINGING_SOURCE,
         (f"no re-crossing of VIL {_fmt(v_il, 'V')} / VIH {_fmt(v_ih, 'V')} at {rx.label}"
          if total == 0 else
          f"{total} re-crossing(s) of VIL {_fmt(v_il, 'V')} / VIH {_fmt(v_ih, 'V')} at "
-         f"{rx.label} after the first crossing: risk of {what}"),
+         f"{rx.label} after the first crossing: risk of {what}") + corner,
         subject=rx.ref,
         details={f"{edge}_{kind}": n for edge, (e, o) in counts.items()
                  for kind, n in (("recrossings", e), ("full_reversals", o))},
@@ -137,5 +146,6 @@ def _edge_check(cases: dict, clock: float, warn: float) -> Check:
     return rule_of_thumb(check_max(
         "edge-time", edge, limit, "s", EDGE_RULE,
         f"slowest 10-90 % edge {_fmt(edge, 's')} at the far end against "
-        f"{EDGE_FRACTION:.0%} of the {_fmt(1.0 / clock, 's')} period",
+        f"{EDGE_FRACTION:.0%} of the {_fmt(1.0 / clock, 's')} period"
+        + _corner(cases.values(), "slow"),
         warn_margin=warn, details={"fraction": EDGE_FRACTION}))

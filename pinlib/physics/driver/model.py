@@ -104,6 +104,10 @@ class Driver:
         Assumptions made while building the driver. [1]
     fit_rise, fit_fall : DriverFit or None
         The edge fits, when the pin has edge points for that direction. [1]
+    fast : Driver or None
+        The output's fast corner (strongest drive, quickest ramps), when the part states
+        one (``[pins.<name>.fast]``): the corner that sets overshoot, undershoot and
+        ringing, while this driver (the slow corner) sets edge times and timing. [1]
     """
 
     r_rise: float
@@ -114,6 +118,7 @@ class Driver:
     notes: tuple[str, ...] = ()
     fit_rise: DriverFit | None = None
     fit_fall: DriverFit | None = None
+    fast: Driver | None = None
 
     @property
     def derived(self) -> frozenset[str]:

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from dataclasses import dataclass, replace
+
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.physics.driver.fitting import _fmt, fit_driver
@@ -93,7 +95,7 @@ def driver_from_pin(pin, vdd, *, default_t_ramp=DEFAULT_T_RAMP):
             more.append(f"{which}: no edge points; t_ramp set to {_fmt(t_default, 's')}")
         notes.extend(more)
 
-    return Driver(
+    slow = Driver(
         r_rise=result["r_rise"],
         r_fall=result["r_fall"],
         t_ramp_rise=result["t_ramp_rise"],
@@ -103,6 +105,56 @@ def driver_from_pin(pin, vdd, *, default_t_ramp=DEFAULT_T_RAMP):
         fit_rise=fits["rise"],
         fit_fall=fits["fall"],
     )
+    fast = _fast_driver(pin, vdd_f, slow)
+    return slow if fast is None else replace(slow, fast=fast)
+
+
+@dataclass(frozen=True)
+class _CornerPin:
+    """The fields of a pin that :func:`driver_from_pin` reads, for one output corner."""
+
+    drive: str
+    r_out: object
+    edges: tuple
+    v_oh: object
+    i_oh: object
+    v_ol: object
+    i_ol: object
+
+
+def _fast_driver(pin, vdd_f: float, slow: Driver) -> Driver | None:
+    """The pin's fast corner (``fast``: its own ``r_out`` and ``edges``) as a driver.
+
+    Built as the slow corner is, from the corner's ``r_out`` and ``edges`` and the pin's
+    output levels; a direction without edge points of its own keeps the slow corner's
+    ramp (a stronger output with the same ramp) and, without a corner ``r_out``, the slow
+    corner's ``r_out`` too; a note says so.
+    """
+    corner = getattr(pin, "fast", None)
+    if corner is None:
+        return None
+    view = _CornerPin("push-pull", corner.r_out, tuple(corner.edges), pin.v_oh, pin.i_oh,
+                      pin.v_ol, pin.i_ol)
+    model = driver_from_pin(view, vdd_f)
+    basis = dict(model.basis)
+    ramps = {}
+    notes = [n for n in model.notes if "no edge points" not in n
+             and "no r_out, edges or output levels" not in n]
+    for which in ("rise", "fall"):
+        key, r_key = f"t_ramp_{which}", ("r_rise" if which == "rise" else "r_fall")
+        if basis[key] != "default":
+            continue
+        ramps[key] = getattr(slow, key)
+        basis[key] = "slow corner"
+        kept = f"ramp {_fmt(ramps[key], 's')}"
+        if corner.r_out is None:
+            ramps[r_key] = getattr(slow, r_key)
+            basis[r_key] = "slow corner"
+            kept = f"r_out {_fmt(ramps[r_key], 'Ω')} and " + kept
+        notes.append(f"{which}: no edge points of the fast corner; the slow corner's "
+                     f"{kept} kept")
+    notes = tuple(f"fast corner: {n}" for n in notes)
+    return replace(model, basis=basis, notes=notes, **ramps)
 
 
 def _r_out_dc(pin, vdd_f: float) -> dict:

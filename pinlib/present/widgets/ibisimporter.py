@@ -1,0 +1,260 @@
+"""Workbench 04, second panel: a team part from an IBIS file, previewed before it is
+written (:class:`IbisImporter`).
+
+The panel reads the file (:func:`pinlib.library.ibis.read_ibis`), offers its components,
+and for the chosen one a function per pin, guessed from the signal name
+(:func:`pinlib.library.pinguess.guess_function`).  *Preview* shows every value the
+import would write, each with its provenance (the text of
+:func:`pinlib.library.ibisimport.part_text`, the driver corners from
+:func:`pinlib.engines.ibisdriver.output_corners`), and the fit's warnings; *Write* writes
+the part through :func:`pinlib.library.ibisimport.import_part` (locked, atomic, never
+into the built-in library).  Nothing here computes a value.
+"""
+
+from __future__ import annotations
+
+import os
+from pathlib import Path
+
+import ipywidgets as W
+
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError, PinlibError
+from pinlib.core.protocols import PIN_FUNCTIONS
+from pinlib.core.tomlfile import tomllib
+from pinlib.library import load_library
+from pinlib.library.schema import CATEGORIES
+from pinlib.present.widgets.common import (
+    StaticView,
+    _Panel,
+    block_layout,
+    button_layout,
+    field_layout,
+    style,
+)
+from pinlib.present.widgets.markup import (
+    CELL,
+    HEAD,
+    TABLE,
+    _caption,
+    block,
+    caution_html,
+    e,
+    error_html,
+    note,
+)
+
+#: The choice of a pin that is not imported.
+SKIP = "(not imported)"
+_WIDTH = "400px"
+
+
+def _s() -> dict:
+    return {"style": style(), "layout": field_layout(width=_WIDTH, max_width="100%")}
+
+
+class IbisImporter(_Panel):
+    """Pick an IBIS file, a component and its pins' functions; preview the derived
+    values with their provenance; write the team part.
+
+    Parameters
+    ----------
+    folder : path
+        The team library folder the part is written into.
+    library_folders : iterable of paths
+        Other team folders to read (a part's id must not clash with theirs).
+
+    Attributes
+    ----------
+    ibis : IbisFile or None
+        The file last read.
+    text : str or None
+        The part file of the last preview.
+    warnings : list of str
+        The fit's warnings of the last preview.
+    written : Path or None
+        The file the last write made.
+    """
+
+    def __init__(self, folder: str | os.PathLike, *, library_folders=(),
+                 title: str | None = None):
+        super().__init__()
+        self.folder = Path(folder)
+        self.library_folders = [Path(f) for f in library_folders]
+        self.ibis = None
+        self.text: str | None = None
+        self.warnings: list[str] = []
+        self.written: Path | None = None
+        self.file = W.Text(placeholder="path/to/part.ibs", description="IBIS file", **_s())
+        self.read_button = W.Button(description="Read the file", layout=button_layout("160px"))
+        self.component = W.Dropdown(options=[], description="Component", **_s())
+        self.new_id = W.Text(placeholder="io-buffer-acme", description="Part id", **_s())
+        self.category = W.Dropdown(options=list(CATEGORIES), value="logic",
+                                   description="Category", **_s())
+        self.i_ol = W.Text(placeholder="3 mA (open-drain pins)", description="i_ol", **_s())
+        self.preview_button = W.Button(description="Preview", layout=button_layout("160px"))
+        self.write_button = W.Button(description="Write the part", layout=button_layout("160px"))
+        self.pin_box = W.VBox(layout=W.Layout(width="100%"))
+        self.pins: dict[str, W.Dropdown] = {}
+        self.preview_html = W.HTML(layout=block_layout())
+        self.message = W.HTML(layout=block_layout())
+        self.read_button.on_click(lambda _b: self.read())
+        self.preview_button.on_click(lambda _b: self.preview())
+        self.write_button.on_click(lambda _b: self.write())
+        self.component.observe(lambda _c: self._pins_of_component(), names="value")
+        form = W.VBox([W.HBox([self.file, self.read_button]), self.component,
+                       W.HTML(block("The function of each pin (guessed from its signal "
+                                    "name; pins left out are not imported):")),
+                       self.pin_box, self.new_id, self.category, self.i_ol,
+                       W.HBox([self.preview_button, self.write_button])],
+                      layout=W.Layout(width="100%"))
+        self.widget = W.VBox([self._header(title or f"Import a part from IBIS into {self.folder}"),
+                              form, self.message, self.preview_html],
+                             layout=W.Layout(width="100%"))
+
+    # ------------------------------------------------------------------ controls
+    def set(self, **values):
+        """Fill fields by name: ``file``, ``component``, ``id``, ``category``, ``i_ol``,
+        and ``pins`` (a dict of pin signal to function, or to None to leave it out)."""
+        names = {"file": self.file, "component": self.component, "id": self.new_id,
+                 "category": self.category, "i_ol": self.i_ol}
+        unknown = sorted(set(values) - set(names) - {"pins"})
+        if unknown:
+            raise InputError(M.UNKNOWN_FIELD, field=unknown[0],
+                             expected="one of " + ", ".join([*names, "pins"]))
+        if "file" in values:
+            self.file.value = values["file"]
+            self.read()
+        for name, value in values.items():
+            if name not in ("pins", "file"):
+                names[name].value = value
+        for signal, function in (values.get("pins") or {}).items():
+            self.pins[signal].value = function or SKIP
+        return self
+
+    def read(self) -> bool:
+        """Read the file named in the first field; offer its components."""
+        from pinlib.library.ibis import read_ibis
+
+        try:
+            self.ibis = read_ibis(self.file.value.strip())
+        except PinlibError as err:
+            self.ibis = None
+            self.component.options = []
+            self.message.value = error_html(err)
+            return False
+        self.message.value = block(f"read {e(self.file.value.strip())}: IBIS "
+                                   f"{e(self.ibis.header.get('ibis ver', '?'))}, file rev "
+                                   f"{e(self.ibis.file_rev or '?')}")
+        self.component.options = list(self.ibis.components)
+        self._pins_of_component()
+        return True
+
+    def _pins_of_component(self) -> None:
+        from pinlib.library.pinguess import guess_function
+
+        self.pins = {}
+        rows = []
+        if self.ibis is not None and self.component.value in self.ibis.components:
+            for pin in self.ibis.components[self.component.value].pins:
+                if pin.model.upper() in ("POWER", "GND", "NC") or pin.signal in self.pins:
+                    continue
+                guess = guess_function(pin.signal)
+                box = W.Dropdown(options=[SKIP, *PIN_FUNCTIONS], value=guess or SKIP,
+                                 description=f"{pin.signal}", **_s())
+                self.pins[pin.signal] = box
+                rows.append(box)
+        self.pin_box.children = rows
+        self.text = None
+        self.preview_html.value = ""
+
+    def mapping(self) -> dict[str, str]:
+        """The pins chosen, by signal name, with their functions."""
+        return {sig: box.value for sig, box in self.pins.items() if box.value != SKIP}
+
+    # ------------------------------------------------------------------ actions
+    def _arguments(self) -> dict:
+        from pinlib.core.quantity import parse
+        from pinlib.engines.ibisdriver import output_corners
+
+        text = self.i_ol.value.strip()
+        return {"category": self.category.value, "outputs": output_corners,
+                "i_ol": parse(text, "A", field="i_ol") if text else None}
+
+    def preview(self) -> str | None:
+        """The part file the import would write, shown as a table of its values with
+        their provenance; None (and the problem shown) when refused."""
+        from pinlib.library.ibisimport import part_text
+
+        self.warnings = []
+        try:
+            if self.ibis is None:
+                raise InputError(M.IBIS_PIN_MAPPING, field="IBIS file",
+                                 expected="a file read with 'Read the file'")
+            self.text = part_text(self.ibis, self.component.value, self.mapping(),
+                                  self.new_id.value.strip() or "preview",
+                                  warnings=self.warnings, **self._arguments())
+        except PinlibError as err:
+            self.text = None
+            self.message.value = error_html(err)
+            return None
+        self.message.value = "".join(block(f"warning: {e(w)}") for w in self.warnings)
+        self.preview_html.value = values_table(self.text)
+        return self.text
+
+    def write(self) -> Path | None:
+        """Write the part into the team folder; None (and the problem shown) when refused."""
+        from pinlib.library.ibisimport import import_part
+
+        if self.preview() is None:
+            return None
+        try:
+            folders = self.library_folders + ([self.folder] if self.folder.is_dir() else [])
+            path = import_part(load_library(folders), self.ibis, self.component.value,
+                               self.mapping(), self.new_id.value.strip(), self.folder,
+                               **self._arguments())
+        except PinlibError as err:
+            self.message.value = error_html(err)
+            return None
+        self.written = path
+        self.message.value = block(f"created <code>{e(path)}</code>")
+        return path
+
+    def update(self) -> None:
+        self.preview()
+
+    def static_view(self) -> StaticView:
+        """The last preview, as plain HTML."""
+        return StaticView(caution_html() + (self.preview_html.value or note("no preview")))
+
+
+def _rows(prefix: str, table: dict):
+    """(field path, value, typ, basis, source) of every value of a part file's table."""
+    for key, value in table.items():
+        path = f"{prefix}.{key}" if prefix else key
+        if isinstance(value, dict) and "value" in value:
+            yield (path, value["value"], value.get("typ", ""), value.get("basis", ""),
+                   value.get("source", ""))
+        elif isinstance(value, dict):
+            yield from _rows(path, value)
+        elif isinstance(value, list):
+            for item in value:
+                if isinstance(item, dict):
+                    load = item.get("load", "")
+                    inner = {k: v for k, v in item.items() if k not in ("load", "levels")}
+                    yield from _rows(f"{path}[{load}]", inner)
+        elif key not in ("format", "id", "title", "category", "function", "drive"):
+            yield path, str(value), "", "", ""
+
+
+def values_table(text: str) -> str:
+    """An HTML table of the values of a part file's text, each with its provenance."""
+    data = tomllib.loads(text)
+    body = {k: v for k, v in data.items() if k in ("supply", "pins", "timing")}
+    rows = "".join(
+        "<tr>" + "".join(f'<td style="{CELL}">{e(c)}</td>' for c in row) + "</tr>"
+        for row in _rows("", body))
+    head = "".join(f'<th style="{HEAD}">{h}</th>'
+                   for h in ("field", "value", "typ", "basis", "source"))
+    return (f'<table style="{TABLE}">{_caption("Values the import writes")}'
+            f"<tr>{head}</tr>{rows}</table>")

@@ -1,0 +1,128 @@
+"""A push-pull output's fast corner (``[pins.<name>.fast]``): the format and the line engine.
+
+The slow corner (the pin's ``r_out`` and ``edges``) sets edge times and timing; the fast
+corner sets overshoot, undershoot and ringing.  The parts here are invented test data.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+from pinlib.core.errors import LibraryError
+from pinlib.engines.pushline import Endpoint, analyse_line
+from pinlib.library import load_library
+from pinlib.library.plausible import part_warnings
+from pinlib.model.design import Device, Line, Section
+from pinlib.physics.driver import driver_from_pin
+
+DATA = Path(__file__).parent / "data" / "pushpull"
+VDD = 3.3
+
+HEAD = """format = "pinlib.part/1"
+id = "{id}"
+title = "Test output, invented"
+category = "logic"
+supply = {{ min = "3.0 V", max = "3.6 V" }}
+provenance = {{ basis = "estimate", source = "test data, invented" }}
+
+[pins.sclk]
+function = "spi-sclk"
+drive = "push-pull"
+c_in = "5 pF"
+"""
+
+# invented: a weak slow corner (40 ohm) and a strong fast one (12 ohm); the 12 ohm part
+# is the fast corner alone, so its results are what the fast corner must give.
+PARTS = {
+    "slow-only": 'r_out = "40 Ω"\n',
+    "fast-only": 'r_out = "12 Ω"\n',
+    "both": 'r_out = "40 Ω"\nfast = { r_out = "12 Ω" }\n',
+}
+
+
+@pytest.fixture(scope="module")
+def lib(tmp_path_factory):
+    folder = tmp_path_factory.mktemp("parts")
+    for pid, body in PARTS.items():
+        (folder / f"{pid}.toml").write_text(HEAD.format(id=pid) + body, encoding="utf-8")
+    return load_library([DATA, folder], builtin=False, env=False)
+
+
+def line_of(lib, part, length=0.20):
+    """The part driving a 50 ohm trace (1 pF/cm, 50 ps/cm) into one receiver."""
+    ctrl = Device("U1", part, lib.parts[part], "controller", None)
+    rx = Device("U2", "pp-periph", lib.parts["pp-periph"], "peripheral", None)
+    d = Endpoint(ctrl, "sclk", ctrl.part.pins["sclk"], VDD)
+    r = Endpoint(rx, "sclk", rx.part.pins["sclk"], VDD)
+    line = Line("sclk", (Section(length, None, 1e-10, 5e-9),), "none", 0.0)
+    return analyse_line("sclk", line, [d], [d, r], [r], clock=20e6, clock_line=True)
+
+
+def test_fast_corner_sets_overshoot_slow_corner_sets_edges_and_timing(lib):
+    slow, fast, both = (line_of(lib, p) for p in ("slow-only", "fast-only", "both"))
+    f_slow, f_fast, f_both = (a.result.figures for a in (slow, fast, both))
+    # derived: a stronger output (12 ohm against 40 ohm into a 50 ohm line) launches a
+    # larger step and reflects more: overshoot rises; its RC edge shortens
+    assert f_fast["overshoot"].value > f_slow["overshoot"].value
+    assert f_fast["edge_rise_time"].value < f_slow["edge_rise_time"].value
+    # the part with both corners: overshoot, undershoot and ringing from the fast one,
+    # edge times and flights from the slow one (the same solves, so to rounding)
+    assert f_both["overshoot"].value == pytest.approx(f_fast["overshoot"].value, rel=1e-12)
+    assert f_both["undershoot"].value == pytest.approx(f_fast["undershoot"].value, rel=1e-12)
+    for name in ("edge_rise_time", "edge_fall_time"):
+        assert f_both[name].value == pytest.approx(f_slow[name].value, rel=1e-12)
+    rx = both.receivers[0]
+    for edge in ("rise", "fall"):
+        got = both.cases["U1"].flight(rx, edge)
+        want = slow.cases["U1"].flight(slow.receivers[0], edge)
+        assert (got.early, got.late) == pytest.approx((want.early, want.late), rel=1e-12)
+    over = both.result.check("overshoot")
+    assert over.value == pytest.approx(fast.result.check("overshoot").value, rel=1e-12)
+    assert over.value > slow.result.check("overshoot").value
+    assert "(fast corner)" in over.message
+    assert "(fast corner)" in both.result.check("ringing").message
+    assert "(slow corner)" in both.result.check("edge-time").message
+    assert "(fast corner)" not in slow.result.check("overshoot").message
+    assert any("fast corner (pins.sclk.fast)" in n for n in both.result.notes)
+
+
+def test_fast_corner_without_edges_keeps_the_slow_ramps(lib):
+    pin = lib.parts["both"].pins["sclk"]
+    model = driver_from_pin(pin, VDD)
+    assert model.r_rise == 40.0 and model.fast.r_rise == 12.0
+    assert model.fast.t_ramp_rise == model.t_ramp_rise
+    assert model.fast.basis["t_ramp_rise"] == "slow corner"
+    assert driver_from_pin(lib.parts["slow-only"].pins["sclk"], VDD).fast is None
+
+
+@pytest.mark.parametrize(("body", "needle"), [
+    ('r_out = "40 Ω"\nfast = { description = "x" }\n', "needs r_out or edges"),
+    ('fast = { r_out = "12 Ω" }\n', "belongs to a push-pull output"),
+])
+def test_fast_corner_refusals(tmp_path, body, needle):
+    text = HEAD.format(id="bad") + body
+    if "belongs" in needle:
+        text = text.replace('drive = "push-pull"', 'drive = "input"')
+    (tmp_path / "bad.toml").write_text(text, encoding="utf-8")
+    with pytest.raises(LibraryError, match=needle):
+        load_library([tmp_path], builtin=False, env=False, strict=True)
+
+
+def test_fast_corner_r_out_has_the_plausible_range(tmp_path):
+    text = HEAD.format(id="odd") + 'r_out = "40 Ω"\nfast = { r_out = "0.2 Ω" }\n'
+    (tmp_path / "odd.toml").write_text(text, encoding="utf-8")
+    lib = load_library([tmp_path], builtin=False, env=False)
+    problems = part_warnings(lib.parts["odd"], lib)
+    # common practice, no source: r_out 1 ohm to 1 kohm (plausible.RANGES)
+    assert [p.field for p in problems] == ["pins.sclk.fast.r_out"]
+
+
+def test_a_fast_corner_weaker_than_the_slow_one_is_a_problem(tmp_path):
+    text = HEAD.format(id="swapped") + 'r_out = "12 Ω"\nfast = { r_out = "40 Ω" }\n'
+    (tmp_path / "swapped.toml").write_text(text, encoding="utf-8")
+    lib = load_library([tmp_path], builtin=False, env=False)
+    (problem,) = part_warnings(lib.parts["swapped"], lib)
+    assert problem.field == "pins.sclk.fast.r_out" and "swapped" in problem.message
+    assert problem.line == 13  # the line of the fast corner (HEAD is 11 lines, r_out 12)

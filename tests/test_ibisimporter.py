@@ -1,0 +1,52 @@
+"""The IBIS import panel of workbook 04 (pinlib.present.widgets.ibisimporter): a file read,
+its pins' functions guessed, the values previewed with their provenance, nothing written
+before *Write the part*.  The IBIS text is the tests' invented model (tests/test_ibis.py)."""
+
+from __future__ import annotations
+
+import pytest
+
+pytest.importorskip("ipywidgets")
+
+from test_ibis import ibis_text  # noqa: E402
+
+from pinlib.library import load_library  # noqa: E402
+from pinlib.present.widgets.ibisimporter import SKIP, IbisImporter  # noqa: E402
+
+
+@pytest.fixture
+def ibs(tmp_path):
+    path = tmp_path / "invented.ibs"
+    path.write_text(ibis_text(model_type="I/O"))
+    return path
+
+
+def test_guess_preview_then_write(tmp_path, ibs):
+    team = tmp_path / "team"
+    panel = IbisImporter(team).set(file=str(ibs), component="DEMO-IO", id="demo-w",
+                                   category="memory")
+    # common practice, no source: SDA and SCL name the I2C signals (pinguess.SPELLINGS)
+    assert panel.mapping() == {"SDA": "i2c-sda", "SCL": "i2c-scl"}
+    panel.set(pins={"SDA": "spi-sclk", "SCL": None})
+    assert panel.mapping() == {"SDA": "spi-sclk"} and panel.pins["SCL"].value == SKIP
+    text = panel.preview()
+    assert text is not None and "[pins.sclk.fast]" in text
+    shown = panel.preview_html.value
+    assert "pins.sclk.edges[15 pF].rise" in shown and "derived:" in shown
+    assert "[Model] io33" in shown and "timing.test_load" in shown
+    assert not team.exists()  # a preview writes nothing
+    path = panel.write()
+    assert path == team / "demo-w.toml"
+    pin = load_library([team], builtin=False, env=False).get("demo-w").pins["sclk"]
+    assert pin.edges and pin.fast is not None and pin.edges[0].rise.basis == "ibis"
+
+
+def test_refusals_are_shown_and_nothing_is_written(tmp_path, ibs):
+    panel = IbisImporter(tmp_path / "team")
+    panel.set(file=str(tmp_path / "missing.ibs"))
+    assert panel.ibis is None and "file not found" in panel.message.value
+    panel.set(file=str(ibs), component="DEMO-IO", id="Bad Id")
+    assert panel.write() is None and not (tmp_path / "team").exists()
+    assert panel.message.value
+    panel.set(id="demo-ok", i_ol="3")  # a current without its unit
+    assert panel.preview() is None and panel.text is None and panel.message.value

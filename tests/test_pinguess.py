@@ -1,0 +1,57 @@
+"""Pin functions guessed from signal names, and `pinlib parts import` without --pin: the
+guess is shown and nothing is written until --yes (or the --pin list shown)."""
+
+from __future__ import annotations
+
+import shlex
+
+import pytest
+from test_ibis import ibis_text
+
+from pinlib.cli import main
+from pinlib.library.pinguess import guess_function
+
+
+@pytest.mark.parametrize(("signal", "function"), [
+    # common practice, no source: the spellings of pin lists (pinguess.SPELLINGS)
+    ("SDA", "i2c-sda"), ("I2C0_SCL", "i2c-scl"), ("SMBCLK", "i2c-scl"),
+    ("SCK", "spi-sclk"), ("SPI1_SCLK", "spi-sclk"), ("QSPI_CLK", "spi-sclk"),
+    ("MOSI", "spi-copi"), ("COPI", "spi-copi"), ("MISO", "spi-cipo"), ("CIPO", "spi-cipo"),
+    ("CS", "spi-cs"), ("nCS", "spi-cs"), ("CS_N", "spi-cs"), ("/CS", "spi-cs"),
+    ("CS#", "spi-cs"), ("SS0", "spi-cs"),
+    # no guess: no known word, a clock that is not SPI's, two signals in one name
+    ("GPIO4", None), ("CLK", None), ("SDA_SCL", None), ("", None), ("X" * 500, None),
+])
+def test_guess_function(signal, function):
+    assert guess_function(signal) == function
+
+
+PINS = ("[Pin]  signal_name  model_name\n"
+        "1      SPI_SCK      io33\n"
+        "2      nCS          io33\n"
+        "3      IRQ          io33\n"
+        "4      VDD          POWER\n")
+
+
+def test_import_shows_the_guess_and_writes_nothing(tmp_path, capsys):
+    ibs = tmp_path / "invented.ibs"
+    ibs.write_text(ibis_text(pins=PINS, edges=""))
+    parts = tmp_path / "parts"
+    code = main(["parts", "import", str(ibs), "--component", "DEMO-IO", "--id", "demo-g",
+                 "--into", str(parts)])
+    out = capsys.readouterr().out
+    assert code == 0
+    assert "SPI_SCK" in out and "spi-sclk" in out and "(no guess)" in out
+    assert not parts.exists()
+    # the --pin list it prints writes the part; so does --yes, to the same values
+    line = next(ln for ln in out.splitlines() if "--pin" in ln and "pinlib" in ln)
+    argv = shlex.split(line)[1:]
+    argv[argv.index("ID")] = "demo-g"
+    assert main(argv + ["--into", str(parts)]) == 0
+    assert main(["parts", "import", str(ibs), "--component", "DEMO-IO", "--id", "demo-y",
+                 "--into", str(parts), "--yes"]) == 0
+    capsys.readouterr()
+    a = (parts / "demo-g.toml").read_text().split("\n", 4)[4]
+    b = (parts / "demo-y.toml").read_text().split("\n", 4)[4]
+    assert a.replace("demo-g", "demo-y") == b
+    assert '[pins.sclk]' in a and '[pins.cs]' in a and "irq" not in a.lower()
