@@ -115,6 +115,12 @@ class BatchCheck:
         Index into :data:`STATUS`, shape ``(N,)``. [1]
     unit : str
         Unit of value and limit. [1]
+    row, corner : numpy.ndarray or None
+        Per variant, where the worst came from: the index of the row (the element the
+        check compares: a receiver, a driver, a device, in the order the engine lists
+        them) and of the rail corner (``0`` the rail at its minimum, ``1`` at its
+        maximum for :class:`WorstCase`), shape ``(N,)``; None for a check of one
+        element at one point. [1]
     """
 
     id: str
@@ -125,6 +131,8 @@ class BatchCheck:
     margin: Any
     status: Any
     unit: str = ""
+    row: Any = None
+    corner: Any = None
 
     @property
     def label(self) -> str:
@@ -164,28 +172,34 @@ class _Out:
 
     def pick(self, id, signal, rows, warn, unit):
         """The worst (row, corner) of margin arrays: ``rows`` of (margin, value, limit)
-        and optionally a per-row warning threshold."""
+        and optionally a per-row warning threshold.  The check keeps, per variant, the
+        row and the corner its worst came from (:attr:`BatchCheck.row`, ``corner``)."""
         shape = np.broadcast_shapes(*[np.shape(a) for r in rows for a in r[:3]],
                                     (self.n, 1))
-        if len(rows) == 1 and shape[1] == 1 and not isinstance(warn, (list, tuple)):
-            m, v, lim = (np.broadcast_to(a, shape)[:, 0] for a in rows[0][:3])
+        n, k = shape
+        if len(rows) == 1 and k == 1 and not isinstance(warn, (list, tuple)):
+            m, v, lim = rows[0][:3]  # columns (or one value), made (n,) by add
             self.add(id, signal, v, lim, m, status_codes(m, warn), unit)
             return
         # (margin, value, limit) × variant × row × corner, filled by broadcasting
         # assignment (one buffer rather than a broadcast view and a stack per array)
-        buf = np.empty((3, shape[0], len(rows), shape[1]))
+        buf = np.empty((3, n, len(rows), k))
         for j, r in enumerate(rows):
-            for q in range(3):
-                buf[q, :, j] = r[q]
-        flat = buf.reshape(3, shape[0], -1)
-        idx = np.argmin(np.where(np.isnan(flat[0]), -np.inf, flat[0]), axis=1)[:, None]
-        margin, value, limit = (np.take_along_axis(x, idx, axis=1)[:, 0] for x in flat)
+            buf[0, :, j] = r[0]
+            buf[1, :, j] = r[1]
+            buf[2, :, j] = r[2]
+        flat = buf.reshape(3, n, -1)
+        m = flat[0]
+        idx = np.argmin(np.where(m != m, -np.inf, m), axis=1)
+        margin, value, limit = flat[:, np.arange(n), idx]
+        row = idx // k
         if isinstance(warn, (list, tuple)):
-            w = np.stack([np.broadcast_to(np.asarray(x, dtype=float).reshape(-1, 1)
-                                          if np.ndim(x) else x, (shape[0], 1))[:, 0]
-                          for x in warn], axis=1)
-            warn = np.take_along_axis(w, idx // shape[1], axis=1)[:, 0]
+            w = np.empty((n, len(warn)))
+            for j, x in enumerate(warn):
+                w[:, j] = np.reshape(x, (-1,)) if np.ndim(x) else x
+            warn = w[np.arange(n), row]
         self.add(id, signal, value, limit, margin, status_codes(margin, warn), unit)
+        self.checks[-1].row, self.checks[-1].corner = row, idx % k
 
     def add(self, id, signal, value, limit, margin, status, unit=""):
         self.checks.append(BatchCheck(
@@ -310,9 +324,13 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
 
 
 def _reduce(fn, arrays):
-    shape = np.broadcast_shapes(*[np.shape(a) for a in arrays])
-    return fn(np.stack([np.broadcast_to(a, shape) for a in arrays]), axis=0)
-
+    """The element-wise maximum (``fn`` = ``np.max``) or minimum (``np.min``) of arrays
+    that broadcast together, NaN propagated. [unit]"""
+    pair = np.maximum if fn is np.max else np.minimum
+    out = np.asarray(arrays[0], dtype=float)
+    for a in arrays[1:]:
+        out = pair(out, a)
+    return out
 
 
 def _segment_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
@@ -467,6 +485,9 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
     lim, seg_ins = collected if collected is not None else collect(bus, design)
     n = int(scenario.n) if swap is None else len(swap[1])
     parts = _Parts(lim, swap)
+    # the engine's corners of the design as it stands: every variant is the design, whose
+    # pull-ups the gathering has chosen already (WorstCase.resistor takes them)
+    chooses = scenario.chooses and not (swap is None and type(scenario) is WorstCase)
     segs: list[_Seg] = []
     for i, (seg, sin) in enumerate(zip(bus.segments, seg_ins, strict=True)):
         v = np.asarray(scenario.rails(seg), dtype=float)
@@ -474,7 +495,7 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
         lines = {sig: _line(bus, seg, sig, fn, v, parts, scenario, lim, board)
                  for sig, fn in SIGNALS.items()}
         s = _Seg(seg, i, v, scenario.spread(seg), lines)
-        if scenario.chooses:
+        if chooses:
             _choose(s)
         else:
             for sig, ln in lines.items():
@@ -483,7 +504,7 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
     pairs = [(s.index, s.seg) for s in segs]
     joins = links(pairs)
     if any(ln.kind == "mosfet" for lst in joins.values() for ln in lst):
-        _couple(segs, joins, scenario)
+        _couple(segs, joins, chooses)
     ctx = _Ctx()
     ctx.lim, ctx.segs, ctx.links, ctx.parts, ctx.n = lim, segs, joins, parts, n
     ctx.warn = design.warn_margin

@@ -501,9 +501,11 @@ def _own_window(s: _Seg):
     return ok
 
 
-def _couple(segs: list[_Seg], links: dict[int, list[_Link]], scen: Scenario) -> None:
+def _couple(segs: list[_Seg], links: dict[int, list[_Link]], chooses: bool) -> None:
+    """Rp(min) of segments joined through pass transistors; with ``chooses``, their
+    ``auto`` pull-ups chosen together (the engine's rule, per variant)."""
     coupled = [s for s in segs if any(ln.kind == "mosfet" for ln in links[s.index])]
-    if not scen.chooses:
+    if not chooses:
         for s in coupled:
             for sig, ln in s.lines.items():
                 ln.rp_min = _rp_min_coupled(s, sig, segs, links[s.index])
