@@ -133,6 +133,14 @@ class BatchCheck:
     unit: str = ""
     row: Any = None
     corner: Any = None
+    names: Any = None
+
+    def worst(self, i: int = 0) -> tuple[str | None, int | None]:
+        """What variant ``i``'s worst came from: the name of its row (None for a check
+        of one element) and its corner (None where the check has one point). [1]"""
+        name = None if self.names is None else self.names[int(self.row[i]) if self.row
+                                                          is not None else 0]
+        return name, None if self.corner is None else int(self.corner[i])
 
     @property
     def label(self) -> str:
@@ -170,16 +178,18 @@ class _Out:
     def _n(self, x):
         return _column(np.asarray(x, dtype=float), self.n)
 
-    def pick(self, id, signal, rows, warn, unit):
+    def pick(self, id, signal, rows, warn, unit, names=None):
         """The worst (row, corner) of margin arrays: ``rows`` of (margin, value, limit)
         and optionally a per-row warning threshold.  The check keeps, per variant, the
-        row and the corner its worst came from (:attr:`BatchCheck.row`, ``corner``)."""
+        row and the corner its worst came from (:attr:`BatchCheck.row`, ``corner``) and
+        ``names``, what each row is."""
         shape = np.broadcast_shapes(*[np.shape(a) for r in rows for a in r[:3]],
                                     (self.n, 1))
         n, k = shape
         if len(rows) == 1 and k == 1 and not isinstance(warn, (list, tuple)):
             m, v, lim = rows[0][:3]  # columns (or one value), made (n,) by add
             self.add(id, signal, v, lim, m, status_codes(m, warn), unit)
+            self.checks[-1].names = names
             return
         # (margin, value, limit) × variant × row × corner, filled by broadcasting
         # assignment (one buffer rather than a broadcast view and a stack per array)
@@ -199,7 +209,8 @@ class _Out:
                 w[:, j] = np.reshape(x, (-1,)) if np.ndim(x) else x
             warn = w[np.arange(n), row]
         self.add(id, signal, value, limit, margin, status_codes(margin, warn), unit)
-        self.checks[-1].row, self.checks[-1].corner = row, idx % k
+        chk = self.checks[-1]
+        chk.row, chk.corner, chk.names = row, idx % k if k > 1 else None, names
 
     def add(self, id, signal, value, limit, margin, status, unit=""):
         self.checks.append(BatchCheck(
@@ -270,7 +281,8 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
         f["v_ol"] = _worst_max(vol_bus)
         if ln.receivers:
             out.pick("v-ol", up, [(max_margin(vol_bus, r.v_il), vol_bus, r.v_il)
-                                  for r in ln.receivers], warn, "V")
+                                  for r in ln.receivers], warn, "V",
+                     [r.tap.label for r in ln.receivers])
             vil_min = _reduce(np.min, [r.v_il for r in ln.receivers])
             nml = vil_min - vol_bus
             f["noise_margin_low"] = np.min(nml, axis=-1, keepdims=True)
@@ -290,7 +302,9 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
                                              axis=1), k, axis=1)
             i_ol = np.take_along_axis(np.stack([np.broadcast_to(d.i_ol, shape)[:, 0]
                                                 for _, d in rows], axis=1), k, axis=1)
-            out.pick("sink-current", up, [(max_margin(im, i_ol), im, i_ol)], warn, "A")
+            out.pick("sink-current", up, [(max_margin(im, i_ol), im, i_ol)], warn, "A",
+                     [d.tap.label for _, d in rows])
+            out.checks[-1].row = k[:, 0]
         f["pullup_power"] = _reduce(np.max, [_worst_max(v * (v - lv[0]) / rp_lo)
                                              for lv in levels + offset_levels])
     # -- high level
@@ -298,7 +312,7 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     f["v_oh"] = np.min(voh, axis=-1, keepdims=True)
     if ln.receivers:
         out.pick("v-oh", up, [(min_margin(voh, r.v_ih), voh, r.v_ih) for r in ln.receivers], warn,
-                 "V")
+                 "V", [r.tap.label for r in ln.receivers])
         vih_max = _reduce(np.max, [r.v_ih for r in ln.receivers])
         nmh = voh - vih_max
         f["noise_margin_high"] = np.min(nmh, axis=-1, keepdims=True)
@@ -307,20 +321,21 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             f["noise_margin_high"] = _at_worst(nmh, min_margin(nmh, limit))
             out.pick("noise-margin-high", up, [(min_margin(nmh, limit), nmh, limit)], warn, "V")
     # -- fall time
-    falls = [_worst_max(t) for t, _, _, _ in fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far,
-                                                       ctx.segs, ln.signal)]
+    bounds = fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far, ctx.segs, ln.signal)
     f["fall_time"] = None
-    if falls:
-        tf = _reduce(np.max, falls)
-        f["fall_time"] = tf
-        out.pick("fall-time", up, [(max_margin(tf, lim.tf_max), tf, lim.tf_max)], warn, "s")
+    if bounds:
+        f["fall_time"] = _reduce(np.max, [_worst_max(t) for t, _, _, _ in bounds])
+        out.pick("fall-time", up, [(max_margin(t, lim.tf_max), t, lim.tf_max)
+                                   for t, _, _, _ in bounds], warn, "s",
+                 [d.tap.label + ("" if link is None else f" via {link.dev.ref}")
+                  for _, d, link, _ in bounds])
         tf_min = lim.tf_min(np.asarray(v[:, -1:], dtype=float))
         if tf_min is not None:
             for d in ln.drivers:
                 t_of = d.tap.pin.t_of_min
                 if t_of is not None:
                     out.pick("fall-time-min", up, [(min_margin(t_of, tf_min), t_of, tf_min)], warn,
-                             "s")
+                             "s", [d.tap.label])
 
 
 def _reduce(fn, arrays):
@@ -356,43 +371,43 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
         t_low, t_high, figs["scl"]["rise_time"], tf_scl if tf_scl is not None else 0.0),
         "sda_setup_margin": None}
     out.pick("scl-frequency", None, [(max_margin(clock, lim.f_max), clock, lim.f_max)], 0.0, "Hz")
-    slow = [ctx.parts.timing(d).f_max for d in seg.devices
+    slow = [(ctx.parts.timing(d).f_max, d.ref) for d in seg.devices
             if not d.is_controller and not d.is_bridge and ctx.parts.timing(d).f_max is not None]
     if slow:
-        f_dev = _reduce(np.min, slow)
-        out.pick("device-speed", None, [(max_margin(clock, f_dev), clock, f_dev)], 0.0, "Hz")
+        out.pick("device-speed", None, [(max_margin(clock, f), clock, f) for f, _ in slow], 0.0,
+                 "Hz", [ref for _, ref in slow])
     # -- SDA data setup
     tr_sda = figs["sda"]["rise_time"]
     def drives_sda(d, seg):
         pin = ctx.parts.pins(d, SIGNALS["sda"], seg.supply)
         return pin is not None and pin.open_drain
 
-    rows = [ctx.parts.timing(d).t_vd_dat + extra for d, extra in data_sources(
-        s.index, ctx.ctrl_seg, [(o.index, o.seg) for o in ctx.segs], ctrl, ctx.delay,
-        drives_sda)]
-    if rows:
-        tvd = _reduce(np.max, rows)
-        budget = t_low - tvd - tr_sda
-        figs["segment"]["sda_setup_margin"] = budget - lim.t_su_dat
-        out.pick("setup-time", None,
-                 [(min_margin(budget, lim.t_su_dat), budget, lim.t_su_dat)], warn, "s")
+    sources = list(data_sources(s.index, ctx.ctrl_seg, [(o.index, o.seg) for o in ctx.segs],
+                                ctrl, ctx.delay, drives_sda))
+    if sources:
+        budgets = [t_low - (ctx.parts.timing(d).t_vd_dat + extra) - tr_sda
+                   for d, extra in sources]
+        out.pick("setup-time", None, [(min_margin(b, lim.t_su_dat), b, lim.t_su_dat)
+                                      for b in budgets], warn, "s", [d.ref for d, _ in sources])
+        figs["segment"]["sda_setup_margin"] = out.checks[-1].value - lim.t_su_dat
 
 
 def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
     """abs_max against the pull-up rail, supply ranges, power states."""
     v, warn, seg = s.v, ctx.warn, s.seg
     taps = [t for sig in SIGNALS for t in s.lines[sig].taps]
-    rows, warns = [], []
+    rows, warns, names = [], [], []
     for t in taps:
         if t.pin.abs_max is None:
             continue
+        names.append(t.label)
         am = _corner(t.pin.abs_max, t, v, "min")
         rows.append((max_margin(v, am), v, am))
         follows = np.logical_and(not t.own, t.pin.abs_follows)
         warns.append(np.where(follows, 0.0, warn))
     if rows:
-        out.pick("input-voltage", None, rows, warns, "V")
-    rows, seen = [], set()
+        out.pick("input-voltage", None, rows, warns, "V", names)
+    rows, seen, names = [], set(), []
     for t in taps:
         if t.ref in seen:
             continue
@@ -403,9 +418,10 @@ def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
         lo = t.rail.min(axis=1, keepdims=True)
         hi = t.rail.max(axis=1, keepdims=True)
         m, low_side = supply_margin(lo, hi, s_min, s_max)
+        names.append(t.label)
         rows.append((m, np.where(low_side, lo, hi), np.where(low_side, s_min, s_max)))
     if rows:
-        out.pick("supply-range", None, rows, 0.0, "V")
+        out.pick("supply-range", None, rows, 0.0, "V", names)
     # -- power states
     for d in seg.devices:
         if not d.switched:
@@ -441,10 +457,12 @@ def _bridge_checks(ctx, s: _Seg, out: _Out) -> None:
             continue
         tap = next(t for t in s.lines["sda"].taps if t.dev is d)
         off = _corner(Level.of(side.low_offset), tap, v, "max")
-        rows = [(max_margin(off, r.v_il), off, r.v_il) for sig in SIGNALS
-                for r in s.lines[sig].receivers if r.tap.dev.ref != d.ref]
-        if rows:
-            out.pick("bridge-offset", None, rows, warn, "V")
+        facing = [(r, sig) for sig in SIGNALS for r in s.lines[sig].receivers
+                  if r.tap.dev.ref != d.ref]
+        if facing:
+            out.pick("bridge-offset", None, [(max_margin(off, r.v_il), off, r.v_il)
+                                             for r, _ in facing], warn, "V",
+                     [f"{r.tap.label} ({sig.upper()})" for r, sig in facing])
     if offsets:
         out.truth("bridge-offset-facing", None, len(offsets) < 2)
 

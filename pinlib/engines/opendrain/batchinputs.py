@@ -313,6 +313,11 @@ class _Tap:
     def ref(self) -> str:
         return self.dev.ref
 
+    @property
+    def label(self) -> str:
+        """The device and its side, as the one-bus engine names it."""
+        return f"{self.dev.ref} side {self.dev.side}" if self.dev.side else self.dev.ref
+
 
 @dataclass
 class _Driver:
