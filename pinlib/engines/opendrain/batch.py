@@ -27,6 +27,7 @@ second axis holds the rail corners (two for :class:`WorstCase`, one for a sample
 
 from __future__ import annotations
 
+import math
 from collections.abc import Sequence
 from dataclasses import dataclass, field
 from typing import Any
@@ -183,9 +184,12 @@ class _Out:
         and optionally a per-row warning threshold.  The check keeps, per variant, the
         row and the corner its worst came from (:attr:`BatchCheck.row`, ``corner``) and
         ``names``, what each row is."""
-        shape = np.broadcast_shapes(*[np.shape(a) for r in rows for a in r[:3]],
-                                    (self.n, 1))
-        n, k = shape
+        if self.n == 1 and len(rows) == 1 and np.size(rows[0][0]) > 1:
+            self._pick_one(id, signal, rows, warn, unit, names)  # one row, its corners
+            return
+        # a margin has the shape of its value and limit broadcast (a row whose value
+        # does not fails loudly at the assignment below)
+        n, k = np.broadcast_shapes(*[np.shape(r[0]) for r in rows], (self.n, 1))
         if len(rows) == 1 and k == 1 and not isinstance(warn, (list, tuple)):
             m, v, lim = rows[0][:3]  # columns (or one value), made (n,) by add
             self.add(id, signal, v, lim, m, status_codes(m, warn), unit)
@@ -211,6 +215,25 @@ class _Out:
         self.add(id, signal, value, limit, margin, status_codes(margin, warn), unit)
         chk = self.checks[-1]
         chk.row, chk.corner, chk.names = row, idx % k if k > 1 else None, names
+
+    def _pick_one(self, id, signal, rows, warn, unit, names):
+        """:meth:`pick` for one variant, in plain Python over the few numbers it has (the
+        same order, NaN the worst, the first of equal margins): faster than the arrays
+        for one row at its corners, slower for many rows."""
+        best, k = None, 1
+        for j, r in enumerate(rows):
+            ms = np.ravel(r[0]).tolist()
+            k = max(k, len(ms))
+            for c, m in enumerate(ms):
+                key = -math.inf if m != m else m
+                if best is None or key < best[0]:
+                    best = (key, j, c)
+        _, j, c = best
+        margin, value, limit = (np.ravel(x)[c if np.size(x) > 1 else 0] for x in rows[j][:3])
+        w = warn[j] if isinstance(warn, (list, tuple)) else warn
+        self.add(id, signal, value, limit, margin, status_codes(margin, w), unit)
+        chk = self.checks[-1]
+        chk.row, chk.corner, chk.names = np.array([j]), np.array([c]) if k > 1 else None, names
 
     def add(self, id, signal, value, limit, margin, status, unit=""):
         self.checks.append(BatchCheck(

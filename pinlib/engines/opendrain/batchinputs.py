@@ -349,6 +349,7 @@ class _Line:
     rp_max: Any
     rise_factor: Any
     pullup: Any = None     # the design resistor on this line
+    r_eff: tuple | None = None  # (pullup, every pull-up in parallel) once worked out
 
 
 @dataclass
@@ -360,7 +361,10 @@ class _Seg:
     lines: dict
 
     def r_eff(self, signal):
-        return pu.parallel(self.lines[signal].pullup, self.lines[signal].r_parts)
+        ln = self.lines[signal]
+        if ln.r_eff is None or ln.r_eff[0] is not ln.pullup:  # worked out once per pull-up
+            ln.r_eff = (ln.pullup, pu.parallel(ln.pullup, ln.r_parts))
+        return ln.r_eff[1]
 
     def r_lo(self, signal):
         return self.r_eff(signal) * (1 - self.tol)
