@@ -259,15 +259,6 @@ def _worst_max(x):
     return np.max(x, axis=1, keepdims=True)
 
 
-def _at_worst(x, margin):
-    """``x`` at the corner of the smallest ``margin`` (NaN counted as the worst), per
-    variant: the one-bus engine's figure for a check's value. [unit]"""
-    shape = np.broadcast_shapes(np.shape(x), np.shape(margin))
-    m = np.broadcast_to(margin, shape)
-    idx = np.argmin(np.where(np.isnan(m), -np.inf, m), axis=-1)[..., None]
-    return np.take_along_axis(np.broadcast_to(x, shape), idx, axis=-1)
-
-
 def _far(s: _Seg, segs: list[_Seg], links: list[_Link], signal: str):
     return [(link, segs[link.other].v, segs[link.other].r_lo(signal)) for link in links
             if link.kind == "mosfet"]
@@ -311,8 +302,9 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             f["noise_margin_low"] = np.min(nml, axis=-1, keepdims=True)
             if lim.v_nl_rel is not None:
                 limit = lim.v_nl_rel * v
-                f["noise_margin_low"] = _at_worst(nml, min_margin(nml, limit))
                 out.pick("noise-margin-low", up, [(min_margin(nml, limit), nml, limit)], warn, "V")
+                # the figure is the check's value (at the corner of its worst margin)
+                f["noise_margin_low"] = out.checks[-1].value[:, None]
     if levels or offset_levels:
         rows = [(i, d) for _, i, d in levels + offset_levels if d is not None]
         if rows:
@@ -341,8 +333,8 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
         f["noise_margin_high"] = np.min(nmh, axis=-1, keepdims=True)
         if lim.v_nh_rel is not None:
             limit = lim.v_nh_rel * v
-            f["noise_margin_high"] = _at_worst(nmh, min_margin(nmh, limit))
             out.pick("noise-margin-high", up, [(min_margin(nmh, limit), nmh, limit)], warn, "V")
+            f["noise_margin_high"] = out.checks[-1].value[:, None]  # as noise_margin_low
     # -- fall time
     bounds = fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far, ctx.segs, ln.signal)
     f["fall_time"] = None
