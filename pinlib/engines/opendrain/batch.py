@@ -335,22 +335,28 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             limit = lim.v_nh_rel * v
             out.pick("noise-margin-high", up, [(min_margin(nmh, limit), nmh, limit)], warn, "V")
             f["noise_margin_high"] = out.checks[-1].value[:, None]  # as noise_margin_low
-    # -- fall time
+    _fall_checks(ctx, ln, out, f, rp_lo, v, far)
+
+
+def _fall_checks(ctx, ln: _Line, out: _Out, f: dict, rp_lo, v, far) -> None:
+    """Fall time (each driver's upper bound, the worst named) and tf(min)."""
+    lim, warn, up = ctx.lim, ctx.warn, ln.signal.upper()
     bounds = fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far, ctx.segs, ln.signal)
     f["fall_time"] = None
-    if bounds:
-        f["fall_time"] = _reduce(np.max, [_worst_max(t) for t, _, _, _ in bounds])
-        out.pick("fall-time", up, [(max_margin(t, lim.tf_max), t, lim.tf_max)
-                                   for t, _, _, _ in bounds], warn, "s",
-                 [d.tap.label + ("" if link is None else f" via {link.dev.ref}")
-                  for _, d, link, _ in bounds])
-        tf_min = lim.tf_min(np.asarray(v[:, -1:], dtype=float))
-        if tf_min is not None:
-            for d in ln.drivers:
-                t_of = d.tap.pin.t_of_min
-                if t_of is not None:
-                    out.pick("fall-time-min", up, [(min_margin(t_of, tf_min), t_of, tf_min)], warn,
-                             "s", [d.tap.label])
+    if not bounds:
+        return
+    f["fall_time"] = _reduce(np.max, [_worst_max(t) for t, _, _, _ in bounds])
+    out.pick("fall-time", up, [(max_margin(t, lim.tf_max), t, lim.tf_max)
+                               for t, _, _, _ in bounds], warn, "s",
+             [d.tap.label + ("" if link is None else f" via {link.dev.ref}")
+              for _, d, link, _ in bounds])
+    tf_min = lim.tf_min(np.asarray(v[:, -1:], dtype=float))
+    if tf_min is not None:
+        for d in ln.drivers:
+            t_of = d.tap.pin.t_of_min
+            if t_of is not None:
+                out.pick("fall-time-min", up, [(min_margin(t_of, tf_min), t_of, tf_min)], warn,
+                         "s", [d.tap.label])
 
 
 def _reduce(fn, arrays):
