@@ -10,7 +10,8 @@ is fixed for a batch; every *value* may be an array over the batch.
 
 It shares the one-bus engine's rules and arithmetic (:mod:`.inputs`, :mod:`.arith`,
 :func:`.bridges.gate_drive`) and makes the same checks in the same order, without the
-messages, so that each
+messages (each check names its rows and keeps, per variant, the row and rail corner
+of its worst: :meth:`BatchCheck.worst`), so that each
 variant's margins are the engine's; the tests hold it to that (a batch of candidates
 against :func:`pinlib.engines.dispatch.check_design` of each substituted design, and samples of a
 design without tolerances against its engine result).
@@ -508,7 +509,9 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
         A reference designator and the parts to put there, one per variant; they must
         share one :func:`structure`, and the position must not be a bridging part. [1]
     collected : tuple, optional
-        :func:`pinlib.engines.opendrain.collect` of the bus, when already at hand. [1]
+        :func:`pinlib.engines.opendrain.collect` of the bus, when already at hand; at
+        the design's own corners (:class:`WorstCase`, no ``swap``) its chosen pull-ups
+        are taken rather than chosen again. [1]
 
     Returns
     -------
