@@ -964,6 +964,19 @@ def test_batch_names_the_element_and_corner_of_each_worst():
                         assert _CORNERS[corner] in one.message, (one.message, corner)
                         assert _CORNERS[1 - corner] not in one.message, one.message
                         corners.add(corner)
+                    if one.id in ("v-ol", "v-oh"):
+                        # derived: each receiver's own worst margin, as the one-bus
+                        # check lists them
+                        kept = dict(zip(arr.names, arr.row_margins[0].tolist(), strict=True))
+                        assert kept.keys() == one.details["receivers"].keys()
+                        for who, m in one.details["receivers"].items():
+                            assert kept[who] == pytest.approx(m, rel=1e-12, abs=0), who
+                    if one.id == "input-voltage":
+                        failing = {n for n, m in zip(arr.names, arr.row_margins[0],
+                                                     strict=True) if m < 0}
+                        assert (one.fix is None) == (not failing), one.fix
+                        assert all(f"{n}," in f"{one.fix}," or f"{n} " in one.fix
+                                   for n in failing), (one.fix, failing)
                     if arr.row is not None and arr.names and len(arr.names) > 1:
                         later_rows += int(arr.row[0]) > 0
                     if one.id in ("rise-time", "pullup-window", "scl-frequency"):
