@@ -971,6 +971,9 @@ def test_batch_names_the_element_and_corner_of_each_worst():
                         assert kept.keys() == one.details["receivers"].keys()
                         for who, m in one.details["receivers"].items():
                             assert kept[who] == pytest.approx(m, rel=1e-12, abs=0), who
+                    if one.id == "v-ol":
+                        by = arr.by_names[int(arr.by[0])]
+                        assert f"(driver {by} at the actual current" in one.message, by
                     if one.id == "input-voltage":
                         failing = {n for n, m in zip(arr.names, arr.row_margins[0],
                                                      strict=True) if m < 0}

@@ -132,12 +132,16 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     f["v_ol"] = None
     if levels:
         shape = np.broadcast_shapes(*[lv[0].shape for lv in levels])
-        vol_bus = np.max(np.stack([np.broadcast_to(lv[0], shape) for lv in levels]), axis=0)
+        stacked = np.stack([np.broadcast_to(lv[0], shape) for lv in levels])
+        vol_bus = np.max(stacked, axis=0)
         f["v_ol"] = _worst_max(vol_bus)
         if ln.receivers:
             out.pick("v-ol", up, [(max_margin(vol_bus, r.v_il), vol_bus, r.v_il)
                                   for r in ln.receivers], warn, "V",
                      [r.tap.label for r in ln.receivers], per_row=True)
+            _driver_behind(out.checks[-1], stacked, ctx.n, [
+                d.tap.label + ("" if link is None else f" via {link.dev.ref}")
+                for _, _, d, link in raw])
             vil_min = _reduce(np.min, [r.v_il for r in ln.receivers])
             nml = vil_min - vol_bus
             f["noise_margin_low"] = np.min(nml, axis=-1, keepdims=True)
@@ -177,6 +181,15 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             out.pick("noise-margin-high", up, [(min_margin(nmh, limit), nmh, limit)], warn, "V")
             f["noise_margin_high"] = out.checks[-1].value[:, None]  # as noise_margin_low
     _fall_checks(ctx, ln, out, f, rp_lo, v, far)
+
+
+def _driver_behind(chk, stacked, n: int, names: list) -> None:
+    """The driver whose low level is the bus's at the v-ol check's worst corner, per
+    variant (the first of equal levels, as the one-bus check names it)."""
+    by = np.argmax(stacked, axis=0)
+    by = np.broadcast_to(by, (n, by.shape[-1]))
+    corner = chk.corner if chk.corner is not None else np.zeros(n, dtype=int)
+    chk.by, chk.by_names = by[np.arange(n), corner], names
 
 
 def _fall_checks(ctx, ln: _Line, out: _Out, f: dict, rp_lo, v, far) -> None:

@@ -49,6 +49,9 @@ class BatchCheck:
     row_margins : numpy.ndarray or None
         Where kept (the checks that list every element: v-ol, v-oh, input-voltage),
         each row's own worst margin over the corners, shape ``(N, rows)``. [1]
+    by, by_names : numpy.ndarray, list or None
+        Where kept (v-ol: the driver whose low level is the bus's), the index into
+        ``by_names`` of what is behind the worst value, shape ``(N,)``. [1]
     """
 
     id: str
@@ -63,6 +66,8 @@ class BatchCheck:
     corner: Any = None
     names: Any = None
     row_margins: Any = None
+    by: Any = None
+    by_names: Any = None
 
     def worst(self, i: int = 0) -> tuple[str | None, int | None]:
         """What variant ``i``'s worst came from: the name of its row (None for a check
