@@ -158,13 +158,13 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             shape = np.broadcast_shapes(*[np.shape(r) for r in ratio], (ctx.n, 1))
             k = np.argmax(np.stack([np.broadcast_to(r, shape)[:, 0] for r in ratio], axis=1),
                           axis=1)[:, None]
-            im = np.take_along_axis(np.stack([np.broadcast_to(x, shape)[:, 0] for x in i_max],
-                                             axis=1), k, axis=1)
+            currents = np.stack([np.broadcast_to(x, shape)[:, 0] for x in i_max], axis=1)
+            im = np.take_along_axis(currents, k, axis=1)
             i_ol = np.take_along_axis(np.stack([np.broadcast_to(d.i_ol, shape)[:, 0]
                                                 for _, d in rows], axis=1), k, axis=1)
             out.pick("sink-current", up, [(max_margin(im, i_ol), im, i_ol)], warn, "A",
                      [d.tap.label for _, d in rows])
-            out.checks[-1].row = k[:, 0]
+            out.checks[-1].row, out.checks[-1].row_values = k[:, 0], currents
         f["pullup_power"] = _reduce(np.max, [_worst_max(v * (v - lv[0]) / rp_lo)
                                              for lv in levels + offset_levels])
     # -- high level

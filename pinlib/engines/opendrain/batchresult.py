@@ -49,6 +49,9 @@ class BatchCheck:
     row_margins : numpy.ndarray or None
         Where kept (the checks that list every element: v-ol, v-oh, input-voltage),
         each row's own worst margin over the corners, shape ``(N, rows)``. [1]
+    row_values : numpy.ndarray or None
+        Where kept (sink-current: each driver's largest current), each row's own
+        value, shape ``(N, rows)``. [unit]
     by, by_names : numpy.ndarray, list or None
         Where kept (v-ol: the driver whose low level is the bus's), the index into
         ``by_names`` of what is behind the worst value, shape ``(N,)``. [1]
@@ -66,6 +69,7 @@ class BatchCheck:
     corner: Any = None
     names: Any = None
     row_margins: Any = None
+    row_values: Any = None
     by: Any = None
     by_names: Any = None
 
