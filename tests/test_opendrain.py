@@ -927,3 +927,70 @@ def test_batch_at_the_engine_corners_makes_every_check_of_the_one_bus_result(pat
                     assert (got is None) == (mine is None), (one.id, one.subject)
                     if got is not None:
                         assert got == pytest.approx(mine, rel=1e-12, abs=0), (one.id, one.subject)
+
+
+#: Checks whose subject names the element (receiver, driver, device) they compare; a
+#: line's check prefixes the line.
+_NAMED = ("v-ol", "v-oh", "sink-current", "fall-time-min", "input-voltage", "supply-range",
+          "device-speed", "setup-time")
+#: Checks whose message names the rail corner of their worst.
+_AT_CORNER = ("v-ol", "v-oh", "noise-margin-low", "noise-margin-high", "fall-time")
+
+
+def test_batch_names_the_element_and_corner_of_each_worst():
+    from pinlib.engines.opendrain.batch import WorstCase, build
+    from pinlib.engines.opendrain.rules import _CORNERS
+
+    later_rows, corners = 0, set()
+    for path, folders in _FIGURE_DESIGNS:
+        d = load_design(path, library_folders=folders)
+        for bus in (b for b in d.buses if b.protocol in ("i2c", "smbus")):
+            res = opendrain.evaluate_bus(bus, d)
+            batch = build(bus, d, WorstCase(1))
+            for g, sb in zip(res.segments or [res], batch.segments, strict=True):
+                for one, arr in zip(g.checks, sb.checks, strict=True):
+                    name, corner = arr.worst()
+                    # derived: the batch's worst row and corner are those the one-bus
+                    # check reports (its subject or message names them)
+                    if one.id in _NAMED:
+                        line = f"{arr.signal} " if arr.signal else ""
+                        prefix = "SDA " if one.id == "setup-time" else line
+                        assert one.subject == f"{prefix}{name}", (one.id, one.subject, name)
+                    if one.id == "fall-time":
+                        assert f"(driver {name}: " in one.message, (one.message, name)
+                    if one.id == "bridge-offset":
+                        assert f" of {name}" in one.message, (one.message, name)
+                    if one.id in _AT_CORNER:
+                        assert _CORNERS[corner] in one.message, (one.message, corner)
+                        assert _CORNERS[1 - corner] not in one.message, one.message
+                        corners.add(corner)
+                    if one.id in ("v-ol", "v-oh"):
+                        # derived: each receiver's own worst margin, as the one-bus
+                        # check lists them
+                        kept = dict(zip(arr.names, arr.row_margins[0].tolist(), strict=True))
+                        assert kept.keys() == one.details["receivers"].keys()
+                        for who, m in one.details["receivers"].items():
+                            assert kept[who] == pytest.approx(m, rel=1e-12, abs=0), who
+                    if one.id == "v-ol":
+                        by = arr.by_names[int(arr.by[0])]
+                        assert f"(driver {by} at the actual current" in one.message, by
+                    if one.id == "sink-current":
+                        # derived: each driver's largest current, as the one-bus check
+                        # lists them
+                        kept = dict(zip(arr.names, arr.row_values[0].tolist(), strict=True))
+                        assert kept.keys() == one.details["drivers"].keys()
+                        for who, i in one.details["drivers"].items():
+                            assert kept[who] == pytest.approx(i, rel=1e-12, abs=0), who
+                    if one.id == "input-voltage":
+                        failing = {n for n, m in zip(arr.names, arr.row_margins[0],
+                                                     strict=True) if m < 0}
+                        assert (one.fix is None) == (not failing), one.fix
+                        assert all(f"{n}," in f"{one.fix}," or f"{n} " in one.fix
+                                   for n in failing), (one.fix, failing)
+                    if arr.row is not None and arr.names and len(arr.names) > 1:
+                        later_rows += int(arr.row[0]) > 0
+                    if one.id in ("rise-time", "pullup-window", "scl-frequency"):
+                        assert arr.worst() == (None, None), one.id  # one element, one point
+    # common practice, no source: the designs exercise a worst past the first row and
+    # both corners, so a tracker stuck at 0 fails
+    assert later_rows > 0 and corners == {0, 1}

@@ -33,8 +33,9 @@ The package:
 - :mod:`.arith`: shape-agnostic line arithmetic (low levels, fall-time bounds);
 - :mod:`.checks` and :mod:`.bridges`: pass 2 for one bus, with messages and fixes;
 - :mod:`.explain`: advice for a failing window, a segment's figures and notes;
-- :mod:`.batchinputs` and :mod:`.batch`: the same checks over arrays of variants
-  (Monte Carlo, corners, candidate parts), without messages.
+- :mod:`.batchinputs`, :mod:`.batchresult` and :mod:`.batch`: the same checks over
+  arrays of variants (Monte Carlo, corners, candidate parts), without messages; each
+  check keeps the row and rail corner of its worst.
 """
 
 from __future__ import annotations

@@ -10,7 +10,8 @@ is fixed for a batch; every *value* may be an array over the batch.
 
 It shares the one-bus engine's rules and arithmetic (:mod:`.inputs`, :mod:`.arith`,
 :func:`.bridges.gate_drive`) and makes the same checks in the same order, without the
-messages, so that each
+messages (each check names its rows and keeps, per variant, the row and rail corner
+of its worst: :meth:`BatchCheck.worst`), so that each
 variant's margins are the engine's; the tests hold it to that (a batch of candidates
 against :func:`pinlib.engines.dispatch.check_design` of each substituted design, and samples of a
 design without tolerances against its engine result).
@@ -28,8 +29,6 @@ second axis holds the rail corners (two for :class:`WorstCase`, one for a sample
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass, field
-from typing import Any
 
 import numpy as np
 
@@ -49,6 +48,13 @@ from pinlib.engines.opendrain.batchinputs import (
     _Seg,
     structure,
 )
+from pinlib.engines.opendrain.batchresult import (
+    STATUS,
+    BatchCheck,
+    BusBatch,
+    SegmentBatch,
+    _Out,
+)
 from pinlib.engines.opendrain.bridges import gate_drive
 from pinlib.engines.opendrain.explain import _WORST
 from pinlib.engines.opendrain.inputs import (
@@ -67,7 +73,7 @@ from pinlib.engines.opendrain.rules import (
 )
 from pinlib.library.schema import Part
 from pinlib.model.design import Bus, Design
-from pinlib.model.result import STATUSES, max_margin, min_margin, status_codes
+from pinlib.model.result import max_margin, min_margin
 from pinlib.physics import pullup as pu
 from pinlib.physics.rc import RISE_10_90
 
@@ -85,139 +91,13 @@ __all__ = [
     "build",
 ]
 
-#: Status codes of :attr:`BatchCheck.status`, in order of severity (the index of each).
-STATUS = STATUSES
-
 #: Parts that load a line but read nothing on it (the engine's rule).
 _NOT_RECEIVERS = ("connector", "cable")
-
-
-# ============================================================================ checks
-
-
-@dataclass
-class BatchCheck:
-    """One check of the engine, for every variant of the batch.
-
-    Attributes
-    ----------
-    id : str
-        The engine's check id (``rise-time``...). [1]
-    segment : str
-        The segment id. [1]
-    signal : str or None
-        ``"SDA"``/``"SCL"`` for a check of one line. [1]
-    value, limit : numpy.ndarray or None
-        At the worst corner and element, shape ``(N,)``; None for a yes/no check. [unit]
-    margin : numpy.ndarray or None
-        Relative margin, shape ``(N,)``; None for a yes/no check. [1]
-    status : numpy.ndarray
-        Index into :data:`STATUS`, shape ``(N,)``. [1]
-    unit : str
-        Unit of value and limit. [1]
-    """
-
-    id: str
-    segment: str
-    signal: str | None
-    value: Any
-    limit: Any
-    margin: Any
-    status: Any
-    unit: str = ""
-
-    @property
-    def label(self) -> str:
-        return f"{self.id} {self.signal}" if self.signal else self.id
-
-
-@dataclass
-class SegmentBatch:
-    id: str
-    checks: list[BatchCheck] = field(default_factory=list)
-    figures: dict = field(default_factory=dict)
-
-
-@dataclass
-class BusBatch:
-    """The checks of one open-drain bus over a batch, segment by segment (in the
-    engine's order within each)."""
-
-    bus: str
-    n: int
-    segments: list[SegmentBatch] = field(default_factory=list)
-
-    def checks(self):
-        """Every check: (segment id, BatchCheck)."""
-        for s in self.segments:
-            for c in s.checks:
-                yield s.id, c
-
-
-class _Out:
-    def __init__(self, seg_id: str, n: int):
-        self.seg_id, self.n = seg_id, n
-        self.checks: list[BatchCheck] = []
-
-    def _n(self, x):
-        return _column(np.asarray(x, dtype=float), self.n)
-
-    def pick(self, id, signal, rows, warn, unit):
-        """The worst (row, corner) of margin arrays: ``rows`` of (margin, value, limit)
-        and optionally a per-row warning threshold."""
-        shape = np.broadcast_shapes(*[np.shape(a) for r in rows for a in r[:3]],
-                                    (self.n, 1))
-        if len(rows) == 1 and shape[1] == 1 and not isinstance(warn, (list, tuple)):
-            m, v, lim = (np.broadcast_to(a, shape)[:, 0] for a in rows[0][:3])
-            self.add(id, signal, v, lim, m, status_codes(m, warn), unit)
-            return
-        # (margin, value, limit) × variant × row × corner, filled by broadcasting
-        # assignment (one buffer rather than a broadcast view and a stack per array)
-        buf = np.empty((3, shape[0], len(rows), shape[1]))
-        for j, r in enumerate(rows):
-            for q in range(3):
-                buf[q, :, j] = r[q]
-        flat = buf.reshape(3, shape[0], -1)
-        idx = np.argmin(np.where(np.isnan(flat[0]), -np.inf, flat[0]), axis=1)[:, None]
-        margin, value, limit = (np.take_along_axis(x, idx, axis=1)[:, 0] for x in flat)
-        if isinstance(warn, (list, tuple)):
-            w = np.stack([np.broadcast_to(np.asarray(x, dtype=float).reshape(-1, 1)
-                                          if np.ndim(x) else x, (shape[0], 1))[:, 0]
-                          for x in warn], axis=1)
-            warn = np.take_along_axis(w, idx // shape[1], axis=1)[:, 0]
-        self.add(id, signal, value, limit, margin, status_codes(margin, warn), unit)
-
-    def add(self, id, signal, value, limit, margin, status, unit=""):
-        self.checks.append(BatchCheck(
-            id, self.seg_id, signal,
-            None if value is None else self._n(value),
-            None if limit is None else self._n(limit),
-            None if margin is None else self._n(margin),
-            _column(np.asarray(status, dtype=np.int8), self.n),
-            unit))
-
-    def truth(self, id, signal, ok):
-        self.add(id, signal, None, None, None, np.where(np.asarray(ok), 0, 2))
-
-
-def _column(a: np.ndarray, n: int) -> np.ndarray:
-    """``a`` as shape ``(n,)``: its own values when it has ``n``, else its one value
-    broadcast. [unit]"""
-    return a.reshape(n) if a.size == n else np.broadcast_to(a.reshape(-1), (n,))
 
 
 def _worst_max(x):
     """Largest over the corner axis. [unit]"""
     return np.max(x, axis=1, keepdims=True)
-
-
-def _at_worst(x, margin):
-    """``x`` at the corner of the smallest ``margin`` (NaN counted as the worst), per
-    variant: the one-bus engine's figure for a check's value. [unit]"""
-    shape = np.broadcast_shapes(np.shape(x), np.shape(margin))
-    m = np.broadcast_to(margin, shape)
-    idx = np.argmin(np.where(np.isnan(m), -np.inf, m), axis=-1)[..., None]
-    return np.take_along_axis(np.broadcast_to(x, shape), idx, axis=-1)
 
 
 def _far(s: _Seg, segs: list[_Seg], links: list[_Link], signal: str):
@@ -252,18 +132,24 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     f["v_ol"] = None
     if levels:
         shape = np.broadcast_shapes(*[lv[0].shape for lv in levels])
-        vol_bus = np.max(np.stack([np.broadcast_to(lv[0], shape) for lv in levels]), axis=0)
+        stacked = np.stack([np.broadcast_to(lv[0], shape) for lv in levels])
+        vol_bus = np.max(stacked, axis=0)
         f["v_ol"] = _worst_max(vol_bus)
         if ln.receivers:
             out.pick("v-ol", up, [(max_margin(vol_bus, r.v_il), vol_bus, r.v_il)
-                                  for r in ln.receivers], warn, "V")
+                                  for r in ln.receivers], warn, "V",
+                     [r.tap.label for r in ln.receivers], per_row=True)
+            _driver_behind(out.checks[-1], stacked, ctx.n, [
+                d.tap.label + ("" if link is None else f" via {link.dev.ref}")
+                for _, _, d, link in raw])
             vil_min = _reduce(np.min, [r.v_il for r in ln.receivers])
             nml = vil_min - vol_bus
             f["noise_margin_low"] = np.min(nml, axis=-1, keepdims=True)
             if lim.v_nl_rel is not None:
                 limit = lim.v_nl_rel * v
-                f["noise_margin_low"] = _at_worst(nml, min_margin(nml, limit))
                 out.pick("noise-margin-low", up, [(min_margin(nml, limit), nml, limit)], warn, "V")
+                # the figure is the check's value (at the corner of its worst margin)
+                f["noise_margin_low"] = out.checks[-1].value[:, None]
     if levels or offset_levels:
         rows = [(i, d) for _, i, d in levels + offset_levels if d is not None]
         if rows:
@@ -272,11 +158,13 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             shape = np.broadcast_shapes(*[np.shape(r) for r in ratio], (ctx.n, 1))
             k = np.argmax(np.stack([np.broadcast_to(r, shape)[:, 0] for r in ratio], axis=1),
                           axis=1)[:, None]
-            im = np.take_along_axis(np.stack([np.broadcast_to(x, shape)[:, 0] for x in i_max],
-                                             axis=1), k, axis=1)
+            currents = np.stack([np.broadcast_to(x, shape)[:, 0] for x in i_max], axis=1)
+            im = np.take_along_axis(currents, k, axis=1)
             i_ol = np.take_along_axis(np.stack([np.broadcast_to(d.i_ol, shape)[:, 0]
                                                 for _, d in rows], axis=1), k, axis=1)
-            out.pick("sink-current", up, [(max_margin(im, i_ol), im, i_ol)], warn, "A")
+            out.pick("sink-current", up, [(max_margin(im, i_ol), im, i_ol)], warn, "A",
+                     [d.tap.label for _, d in rows])
+            out.checks[-1].row, out.checks[-1].row_values = k[:, 0], currents
         f["pullup_power"] = _reduce(np.max, [_worst_max(v * (v - lv[0]) / rp_lo)
                                              for lv in levels + offset_levels])
     # -- high level
@@ -284,35 +172,55 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     f["v_oh"] = np.min(voh, axis=-1, keepdims=True)
     if ln.receivers:
         out.pick("v-oh", up, [(min_margin(voh, r.v_ih), voh, r.v_ih) for r in ln.receivers], warn,
-                 "V")
+                 "V", [r.tap.label for r in ln.receivers], per_row=True)
         vih_max = _reduce(np.max, [r.v_ih for r in ln.receivers])
         nmh = voh - vih_max
         f["noise_margin_high"] = np.min(nmh, axis=-1, keepdims=True)
         if lim.v_nh_rel is not None:
             limit = lim.v_nh_rel * v
-            f["noise_margin_high"] = _at_worst(nmh, min_margin(nmh, limit))
             out.pick("noise-margin-high", up, [(min_margin(nmh, limit), nmh, limit)], warn, "V")
-    # -- fall time
-    falls = [_worst_max(t) for t, _, _, _ in fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far,
-                                                       ctx.segs, ln.signal)]
+            f["noise_margin_high"] = out.checks[-1].value[:, None]  # as noise_margin_low
+    _fall_checks(ctx, ln, out, f, rp_lo, v, far)
+
+
+def _driver_behind(chk, stacked, n: int, names: list) -> None:
+    """The driver whose low level is the bus's at the v-ol check's worst corner, per
+    variant (the first of equal levels, as the one-bus check names it)."""
+    by = np.argmax(stacked, axis=0)
+    by = np.broadcast_to(by, (n, by.shape[-1]))
+    corner = chk.corner if chk.corner is not None else np.zeros(n, dtype=int)
+    chk.by, chk.by_names = by[np.arange(n), corner], names
+
+
+def _fall_checks(ctx, ln: _Line, out: _Out, f: dict, rp_lo, v, far) -> None:
+    """Fall time (each driver's upper bound, the worst named) and tf(min)."""
+    lim, warn, up = ctx.lim, ctx.warn, ln.signal.upper()
+    bounds = fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far, ctx.segs, ln.signal)
     f["fall_time"] = None
-    if falls:
-        tf = _reduce(np.max, falls)
-        f["fall_time"] = tf
-        out.pick("fall-time", up, [(max_margin(tf, lim.tf_max), tf, lim.tf_max)], warn, "s")
-        tf_min = lim.tf_min(np.asarray(v[:, -1:], dtype=float))
-        if tf_min is not None:
-            for d in ln.drivers:
-                t_of = d.tap.pin.t_of_min
-                if t_of is not None:
-                    out.pick("fall-time-min", up, [(min_margin(t_of, tf_min), t_of, tf_min)], warn,
-                             "s")
+    if not bounds:
+        return
+    f["fall_time"] = _reduce(np.max, [_worst_max(t) for t, _, _, _ in bounds])
+    out.pick("fall-time", up, [(max_margin(t, lim.tf_max), t, lim.tf_max)
+                               for t, _, _, _ in bounds], warn, "s",
+             [d.tap.label + ("" if link is None else f" via {link.dev.ref}")
+              for _, d, link, _ in bounds])
+    tf_min = lim.tf_min(np.asarray(v[:, -1:], dtype=float))
+    if tf_min is not None:
+        for d in ln.drivers:
+            t_of = d.tap.pin.t_of_min
+            if t_of is not None:
+                out.pick("fall-time-min", up, [(min_margin(t_of, tf_min), t_of, tf_min)], warn,
+                         "s", [d.tap.label])
 
 
 def _reduce(fn, arrays):
-    shape = np.broadcast_shapes(*[np.shape(a) for a in arrays])
-    return fn(np.stack([np.broadcast_to(a, shape) for a in arrays]), axis=0)
-
+    """The element-wise maximum (``fn`` = ``np.max``) or minimum (``np.min``) of arrays
+    that broadcast together, NaN propagated. [unit]"""
+    pair = np.maximum if fn is np.max else np.minimum
+    out = np.asarray(arrays[0], dtype=float)
+    for a in arrays[1:]:
+        out = pair(out, a)
+    return out
 
 
 def _segment_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
@@ -338,43 +246,43 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
         t_low, t_high, figs["scl"]["rise_time"], tf_scl if tf_scl is not None else 0.0),
         "sda_setup_margin": None}
     out.pick("scl-frequency", None, [(max_margin(clock, lim.f_max), clock, lim.f_max)], 0.0, "Hz")
-    slow = [ctx.parts.timing(d).f_max for d in seg.devices
+    slow = [(ctx.parts.timing(d).f_max, d.ref) for d in seg.devices
             if not d.is_controller and not d.is_bridge and ctx.parts.timing(d).f_max is not None]
     if slow:
-        f_dev = _reduce(np.min, slow)
-        out.pick("device-speed", None, [(max_margin(clock, f_dev), clock, f_dev)], 0.0, "Hz")
+        out.pick("device-speed", None, [(max_margin(clock, f), clock, f) for f, _ in slow], 0.0,
+                 "Hz", [ref for _, ref in slow])
     # -- SDA data setup
     tr_sda = figs["sda"]["rise_time"]
     def drives_sda(d, seg):
         pin = ctx.parts.pins(d, SIGNALS["sda"], seg.supply)
         return pin is not None and pin.open_drain
 
-    rows = [ctx.parts.timing(d).t_vd_dat + extra for d, extra in data_sources(
-        s.index, ctx.ctrl_seg, [(o.index, o.seg) for o in ctx.segs], ctrl, ctx.delay,
-        drives_sda)]
-    if rows:
-        tvd = _reduce(np.max, rows)
-        budget = t_low - tvd - tr_sda
-        figs["segment"]["sda_setup_margin"] = budget - lim.t_su_dat
-        out.pick("setup-time", None,
-                 [(min_margin(budget, lim.t_su_dat), budget, lim.t_su_dat)], warn, "s")
+    sources = list(data_sources(s.index, ctx.ctrl_seg, [(o.index, o.seg) for o in ctx.segs],
+                                ctrl, ctx.delay, drives_sda))
+    if sources:
+        budgets = [t_low - (ctx.parts.timing(d).t_vd_dat + extra) - tr_sda
+                   for d, extra in sources]
+        out.pick("setup-time", None, [(min_margin(b, lim.t_su_dat), b, lim.t_su_dat)
+                                      for b in budgets], warn, "s", [d.ref for d, _ in sources])
+        figs["segment"]["sda_setup_margin"] = out.checks[-1].value - lim.t_su_dat
 
 
 def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
     """abs_max against the pull-up rail, supply ranges, power states."""
     v, warn, seg = s.v, ctx.warn, s.seg
     taps = [t for sig in SIGNALS for t in s.lines[sig].taps]
-    rows, warns = [], []
+    rows, warns, names = [], [], []
     for t in taps:
         if t.pin.abs_max is None:
             continue
+        names.append(t.label)
         am = _corner(t.pin.abs_max, t, v, "min")
         rows.append((max_margin(v, am), v, am))
         follows = np.logical_and(not t.own, t.pin.abs_follows)
         warns.append(np.where(follows, 0.0, warn))
     if rows:
-        out.pick("input-voltage", None, rows, warns, "V")
-    rows, seen = [], set()
+        out.pick("input-voltage", None, rows, warns, "V", names, per_row=True)
+    rows, seen, names = [], set(), []
     for t in taps:
         if t.ref in seen:
             continue
@@ -385,9 +293,10 @@ def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
         lo = t.rail.min(axis=1, keepdims=True)
         hi = t.rail.max(axis=1, keepdims=True)
         m, low_side = supply_margin(lo, hi, s_min, s_max)
+        names.append(t.label)
         rows.append((m, np.where(low_side, lo, hi), np.where(low_side, s_min, s_max)))
     if rows:
-        out.pick("supply-range", None, rows, 0.0, "V")
+        out.pick("supply-range", None, rows, 0.0, "V", names)
     # -- power states
     for d in seg.devices:
         if not d.switched:
@@ -423,10 +332,12 @@ def _bridge_checks(ctx, s: _Seg, out: _Out) -> None:
             continue
         tap = next(t for t in s.lines["sda"].taps if t.dev is d)
         off = _corner(Level.of(side.low_offset), tap, v, "max")
-        rows = [(max_margin(off, r.v_il), off, r.v_il) for sig in SIGNALS
-                for r in s.lines[sig].receivers if r.tap.dev.ref != d.ref]
-        if rows:
-            out.pick("bridge-offset", None, rows, warn, "V")
+        facing = [(r, sig) for sig in SIGNALS for r in s.lines[sig].receivers
+                  if r.tap.dev.ref != d.ref]
+        if facing:
+            out.pick("bridge-offset", None, [(max_margin(off, r.v_il), off, r.v_il)
+                                             for r, _ in facing], warn, "V",
+                     [f"{r.tap.label} ({sig.upper()})" for r, sig in facing])
     if offsets:
         out.truth("bridge-offset-facing", None, len(offsets) < 2)
 
@@ -451,7 +362,9 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
         A reference designator and the parts to put there, one per variant; they must
         share one :func:`structure`, and the position must not be a bridging part. [1]
     collected : tuple, optional
-        :func:`pinlib.engines.opendrain.collect` of the bus, when already at hand. [1]
+        :func:`pinlib.engines.opendrain.collect` of the bus, when already at hand; at
+        the design's own corners (:class:`WorstCase`, no ``swap``) its chosen pull-ups
+        are taken rather than chosen again. [1]
 
     Returns
     -------
@@ -467,6 +380,9 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
     lim, seg_ins = collected if collected is not None else collect(bus, design)
     n = int(scenario.n) if swap is None else len(swap[1])
     parts = _Parts(lim, swap)
+    # the engine's corners of the design as it stands: every variant is the design, whose
+    # pull-ups the gathering has chosen already (WorstCase.resistor takes them)
+    chooses = scenario.chooses and not (swap is None and type(scenario) is WorstCase)
     segs: list[_Seg] = []
     for i, (seg, sin) in enumerate(zip(bus.segments, seg_ins, strict=True)):
         v = np.asarray(scenario.rails(seg), dtype=float)
@@ -474,7 +390,7 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
         lines = {sig: _line(bus, seg, sig, fn, v, parts, scenario, lim, board)
                  for sig, fn in SIGNALS.items()}
         s = _Seg(seg, i, v, scenario.spread(seg), lines)
-        if scenario.chooses:
+        if chooses:
             _choose(s)
         else:
             for sig, ln in lines.items():
@@ -483,7 +399,7 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
     pairs = [(s.index, s.seg) for s in segs]
     joins = links(pairs)
     if any(ln.kind == "mosfet" for lst in joins.values() for ln in lst):
-        _couple(segs, joins, scenario)
+        _couple(segs, joins, chooses)
     ctx = _Ctx()
     ctx.lim, ctx.segs, ctx.links, ctx.parts, ctx.n = lim, segs, joins, parts, n
     ctx.warn = design.warn_margin

@@ -313,6 +313,11 @@ class _Tap:
     def ref(self) -> str:
         return self.dev.ref
 
+    @property
+    def label(self) -> str:
+        """The device and its side, as the one-bus engine names it."""
+        return f"{self.dev.ref} side {self.dev.side}" if self.dev.side else self.dev.ref
+
 
 @dataclass
 class _Driver:
@@ -344,6 +349,7 @@ class _Line:
     rp_max: Any
     rise_factor: Any
     pullup: Any = None     # the design resistor on this line
+    r_eff: tuple | None = None  # (pullup, every pull-up in parallel) once worked out
 
 
 @dataclass
@@ -355,7 +361,10 @@ class _Seg:
     lines: dict
 
     def r_eff(self, signal):
-        return pu.parallel(self.lines[signal].pullup, self.lines[signal].r_parts)
+        ln = self.lines[signal]
+        if ln.r_eff is None or ln.r_eff[0] is not ln.pullup:  # worked out once per pull-up
+            ln.r_eff = (ln.pullup, pu.parallel(ln.pullup, ln.r_parts))
+        return ln.r_eff[1]
 
     def r_lo(self, signal):
         return self.r_eff(signal) * (1 - self.tol)
@@ -501,9 +510,11 @@ def _own_window(s: _Seg):
     return ok
 
 
-def _couple(segs: list[_Seg], links: dict[int, list[_Link]], scen: Scenario) -> None:
+def _couple(segs: list[_Seg], links: dict[int, list[_Link]], chooses: bool) -> None:
+    """Rp(min) of segments joined through pass transistors; with ``chooses``, their
+    ``auto`` pull-ups chosen together (the engine's rule, per variant)."""
     coupled = [s for s in segs if any(ln.kind == "mosfet" for ln in links[s.index])]
-    if not scen.chooses:
+    if not chooses:
         for s in coupled:
             for sig, ln in s.lines.items():
                 ln.rp_min = _rp_min_coupled(s, sig, segs, links[s.index])
