@@ -19,7 +19,7 @@ from contextlib import contextmanager
 from contextvars import ContextVar
 from typing import TypeVar
 
-__all__ = ["run_scope", "remember", "active"]
+__all__ = ["run_scope", "remember", "active", "known", "keep"]
 
 T = TypeVar("T")
 
@@ -58,3 +58,17 @@ def remember(key: Hashable, compute: Callable[[], T]) -> T:
     except KeyError:
         value = memo[key] = compute()
         return value
+
+
+def known(key: Hashable) -> bool:
+    """Whether the scope holds a value under ``key`` (False outside any scope)."""
+    memo = _MEMO.get()
+    return memo is not None and key in memo
+
+
+def keep(key: Hashable, value) -> None:
+    """Store a value computed elsewhere (a batched solve of the same inputs) under
+    ``key``, unless the scope already holds one; nothing outside any scope."""
+    memo = _MEMO.get()
+    if memo is not None:
+        memo.setdefault(key, value)
