@@ -16,7 +16,7 @@ from pinlib.library.values import Sourced
 __all__ = ["BASES", "generated_spi_part", "add_generated"]
 
 #: The built-in classes the generated parts are copies of.
-BASES = ("nor-flash-spi", "adc-spi", "dac-spi", "display-controller-spi")
+BASES = ("nor-flash-spi", "adc-spi", "network-controller-spi", "display-controller-spi")
 
 _SOURCE = "invented for testing (generated part, no source)"
 

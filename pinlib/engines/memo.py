@@ -19,7 +19,7 @@ from contextlib import contextmanager
 from contextvars import ContextVar
 from typing import TypeVar
 
-__all__ = ["run_scope", "remember", "active", "known", "keep"]
+__all__ = ["run_scope", "remember", "active", "known", "keep", "transient"]
 
 T = TypeVar("T")
 
@@ -72,3 +72,20 @@ def keep(key: Hashable, value) -> None:
     memo = _MEMO.get()
     if memo is not None:
         memo.setdefault(key, value)
+
+
+@contextmanager
+def transient() -> Iterator[None]:
+    """What is remembered inside the block is dropped when it ends; what the scope held
+    before stays (a study keeps the edges it solved ahead for many evaluations, not each
+    evaluation's own)."""
+    memo = _MEMO.get()
+    if memo is None:
+        yield
+        return
+    before = set(memo)
+    try:
+        yield
+    finally:
+        for key in [k for k in memo if k not in before]:
+            del memo[key]

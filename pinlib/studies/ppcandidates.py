@@ -70,7 +70,8 @@ def evaluate_batched(design: Design, ref: str, parts: list[Part],
             for p in chunk:
                 try:
                     sw = swapped.get(p.id) or design.with_parts({ref: p.id})
-                    done.append((p, [evaluate_bus(sw.bus(b.id), sw) for b in buses]))
+                    with memo.transient():  # its own solves (corners...) go with it
+                        done.append((p, [evaluate_bus(sw.bus(b.id), sw) for b in buses]))
                 except PinlibError as err:
                     done.append((p, err))
         yield from done

@@ -119,9 +119,9 @@ def _solve(sections: list, batch: list) -> int:
         return 0  # the engine solves these itself, so that its notes carry the warning
     stored = 0
     for j, (key, g, _, _) in enumerate(batch):
-        unit = v[j, :g.t.size].copy()
+        unit = v[j, :g.t.size]  # views of the batch (the engine copies what it keeps)
         if is_settled(unit):
-            memo.keep(key, (g.t, unit, True))
+            memo.keep(key, (t[:g.t.size], unit, True))
             stored += 1
     return stored
 
