@@ -118,8 +118,10 @@ def _open_drain_model(pin: Pin, vdd: float, r_pullup: float, notes: list) -> drv
 def _driver_model(ep: Endpoint, notes: list) -> drv.Driver:
     try:
         # within a run, a pin at one supply is modelled once (its warnings kept with it)
-        model, caught = memo.remember(("pushline.driver_model", id(ep.pin), float(ep.vdd)),
-                                      lambda: _fit_pin(ep.pin, float(ep.vdd)))
+        # (parts by identity, as the line memo: one library serves a run)
+        key = ("pushline.driver_model", ep.device.part_id, ep.pin_name, id(ep.pin),
+               float(ep.vdd))
+        model, caught = memo.remember(key, lambda: _fit_pin(ep.pin, float(ep.vdd)))
     except PinlibError as err:
         # the pin's values refused at this supply: say whose pin, for the dispatcher to
         # name the part file and the design line (pinlib.engines.dispatch)
