@@ -149,10 +149,84 @@ def test_ranking_leaves_fixed_checks_out_of_the_worst_margin():
         assert c.worst_check["id"] not in cand.FIXED_CHECKS
 
 
-def test_spi_positions_are_evaluated_one_at_a_time():
+def test_spi_positions_are_evaluated_with_their_edges_batched():
     r = cand.rank_candidates(DEMO_DESIGN, "U7")
-    assert r.candidates and all(c.method == "per-candidate" for c in r.candidates)
-    assert any("one at a time" in n for n in r.notes)
+    assert r.candidates and all(c.method == "batched" for c in r.candidates)
+    assert any("solved together" in n for n in r.notes)
+    assert not any("one at a time" in n for n in r.notes)
+
+
+# ------------------------------------------------------------ push-pull positions, batched
+
+DATA = ROOT / "tests" / "data"
+PP_DESIGNS = ["long-spi-link.toml", "spi-5v-flash.toml", "spi-cipo-never-high.toml",
+              "spi-length-tolerance.toml", "spi-one-km.toml", "spi-slow-edge.toml"]
+
+
+def _pp_positions(design) -> list[str]:
+    return sorted({d.ref for b in design.buses if b.protocol in ("spi", "gpio")
+                   for d in b.devices})
+
+
+@pytest.mark.parametrize("name", PP_DESIGNS)
+def test_batched_ranking_equals_per_candidate_on_the_test_designs(name):
+    # every SPI and GPIO position of the test designs, the whole built-in library
+    d = load_design(DATA / name)
+    refs = _pp_positions(d)
+    assert refs
+    for ref in refs:
+        fast = cand.rank_candidates(d, ref)
+        assert fast.candidates and all(c.method == "batched" for c in fast.candidates), ref
+        assert_same_ranking(fast, cand.rank_candidates_slow(d, ref))
+
+
+def test_batched_ranking_equals_per_candidate_on_generated_spi_parts():
+    # 120 generated SPI peripherals (invented values: tests/spiparts.py) at the positions
+    # of the demo's display (a 28 cm line, series resistors "auto") and flash (tolerances:
+    # each candidate's corners), and at the controller's; `make bench` holds 1,000
+    from tests.spiparts import add_generated
+
+    lib = load_library()
+    add_generated(lib, 120)
+    d = load_design(DEMO, library=lib)
+    for ref, n in (("U12", 120), ("U7", 24)):
+        parts, _ = cand.eligible(d, ref)
+        keep = {p.id for p in parts if not p.id.startswith("gen-spi-")}
+        keep |= {f"gen-spi-{i:05d}" for i in range(n)}
+        lib_n = Library(parts={k: v for k, v in lib.parts.items()
+                               if not k.startswith("gen-spi-") or k in keep},
+                        files=lib.files, overrides=lib.overrides, problems=[],
+                        folders=lib.folders)
+        dn = load_design(DEMO, library=lib_n)
+        fast = cand.rank_candidates(dn, ref)
+        assert sum(c.part.startswith("gen-spi-") for c in fast.candidates) > n // 2, ref
+        assert len({c.margins for c in fast.candidates}) > n // 4  # they do differ
+        assert_same_ranking(fast, cand.rank_candidates_slow(dn, ref))
+
+
+def test_batched_edges_are_the_engines_own(monkeypatch):
+    # the batched ranking solves far fewer times than one solve per edge, and with the
+    # prefetch turned off (every edge solved by the engine) the ranking is the same
+    from pinlib.engines.pushline import batchsolve
+    from pinlib.physics import waveform as wf
+
+    calls = []
+    solve = wf.distributed_response
+
+    def counted(t, *args, **kw):
+        calls.append(np.ndim(args[2]))
+        return solve(t, *args, **kw)
+
+    monkeypatch.setattr(wf, "distributed_response", counted)
+    fast = cand.rank_candidates(DEMO_DESIGN, "U12")
+    batched = [n for n in calls if n > 0]
+    assert batched and len(calls) < 12 * len(fast.candidates)
+    from pinlib.studies import ppcandidates
+
+    assert ppcandidates.prefetch is batchsolve.prefetch
+
+    monkeypatch.setattr(ppcandidates, "prefetch", lambda inputs: 0)
+    assert_same_ranking(fast, cand.rank_candidates(DEMO_DESIGN, "U12"))
 
 
 def test_categories_and_errors():

@@ -95,3 +95,20 @@ def test_the_demo_check_solves_each_distinct_edge_once_and_changes_no_number(mon
     keys = {(tuple((s.z0, s.td, s.c) for s in a[0]),) + a[1:] for a in calls}
     assert calls and len(keys) == len(calls)
     assert len(calls) < solves_without  # the demo's SPI lines repeat solves
+
+
+def test_kept_values_and_a_transient_block():
+    # keep() stores a value computed elsewhere (never over one already there), known()
+    # says whether one is held, transient() drops what its block added and nothing else
+    assert not memo.known("a")
+    memo.keep("a", 1)  # outside any scope: nothing is kept
+    with memo.run_scope():
+        assert not memo.known("a")
+        memo.keep("a", 1)
+        memo.keep("a", 2)
+        assert memo.known("a") and memo.remember("a", lambda: 3) == 1
+        with memo.transient():
+            memo.keep("b", 4)
+            assert memo.remember("c", lambda: 5) == 5
+        assert memo.known("a") and not memo.known("b") and not memo.known("c")
+    assert not memo.known("a")

@@ -19,7 +19,7 @@ from contextlib import contextmanager
 from contextvars import ContextVar
 from typing import TypeVar
 
-__all__ = ["run_scope", "remember", "active"]
+__all__ = ["run_scope", "remember", "active", "known", "keep", "transient"]
 
 T = TypeVar("T")
 
@@ -58,3 +58,34 @@ def remember(key: Hashable, compute: Callable[[], T]) -> T:
     except KeyError:
         value = memo[key] = compute()
         return value
+
+
+def known(key: Hashable) -> bool:
+    """Whether the scope holds a value under ``key`` (False outside any scope)."""
+    memo = _MEMO.get()
+    return memo is not None and key in memo
+
+
+def keep(key: Hashable, value) -> None:
+    """Store a value computed elsewhere (a batched solve of the same inputs) under
+    ``key``, unless the scope already holds one; nothing outside any scope."""
+    memo = _MEMO.get()
+    if memo is not None:
+        memo.setdefault(key, value)
+
+
+@contextmanager
+def transient() -> Iterator[None]:
+    """What is remembered inside the block is dropped when it ends; what the scope held
+    before stays (a study keeps the edges it solved ahead for many evaluations, not each
+    evaluation's own)."""
+    memo = _MEMO.get()
+    if memo is None:
+        yield
+        return
+    before = set(memo)
+    try:
+        yield
+    finally:
+        for key in [k for k in memo if k not in before]:
+            del memo[key]

@@ -28,14 +28,14 @@ from dataclasses import replace
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError
 from pinlib.engines.opendrain.rules import supply_range_check
-from pinlib.engines.pushline import Endpoint, analyse_line, device_supply
-from pinlib.engines.spi import evaluate_spi
+from pinlib.engines.pushline import Endpoint, LineInputs, device_supply
+from pinlib.engines.spi import evaluate_spi, spi_line_inputs
 from pinlib.library.schema import Pin
 from pinlib.model.design import Bus, Design, Device
 from pinlib.model.result import BusResult, Check
 
 __all__ = ["evaluate_bus", "evaluate_board", "evaluate_gpio", "gpio_pin", "supply_checks",
-           "supply_rows"]
+           "supply_rows", "line_inputs", "gpio_line_inputs"]
 
 
 # --------------------------------------------------------------------------- GPIO
@@ -100,7 +100,29 @@ def gpio_analyses(bus: Bus, design: Design) -> dict:
     DesignError
         A routed line no device drives.
     """
-    out = {}
+    return {li.signal: li.analyse() for li in gpio_line_inputs(bus, design)}
+
+
+def gpio_line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
+    """The inputs of every line analysis :func:`gpio_analyses` makes, in its order.
+
+    Parameters
+    ----------
+    bus : Bus
+        A ``gpio`` bus of ``design``. [1]
+    design : Design
+        The loaded design. [1]
+
+    Returns
+    -------
+    list of LineInputs
+
+    Raises
+    ------
+    DesignError
+        As :func:`gpio_analyses`.
+    """
+    out = []
     for sig, line in bus.lines.items():
         eps = []
         for d in bus.devices:
@@ -114,10 +136,35 @@ def gpio_analyses(bus: Bus, design: Design) -> dict:
                               field=f"bus.{bus.id}.lines.{sig}",
                               hint="give each device's pin (pin = \"NAME\") or use parts with "
                                    "a push-pull or open-drain pin of that name")
-        out[sig] = analyse_line(sig, line, drivers, eps, receivers, clock=bus.clock,
-                                clock_line=False, warn_margin=design.warn_margin,
-                                bus_id=bus.id)
+        out.append(LineInputs(sig, line, tuple(drivers), tuple(eps), tuple(receivers),
+                              clock=bus.clock, clock_line=False,
+                              warn_margin=design.warn_margin, bus_id=bus.id))
     return out
+
+
+def line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
+    """The inputs of every line analysis :func:`evaluate_board` makes on an ``spi`` or
+    ``gpio`` bus (for :func:`pinlib.engines.pushline.batchsolve.prefetch`).
+
+    Parameters
+    ----------
+    bus : Bus
+        An ``spi`` or ``gpio`` bus of ``design``. [1]
+    design : Design
+        The loaded design. [1]
+
+    Returns
+    -------
+    list of LineInputs
+
+    Raises
+    ------
+    DesignError
+        As :func:`evaluate_board`.
+    """
+    if bus.protocol == "spi":
+        return spi_line_inputs(bus, design)
+    return gpio_line_inputs(bus, design)
 
 
 def evaluate_gpio(bus: Bus, design: Design, *, analysis: dict | None = None) -> BusResult:

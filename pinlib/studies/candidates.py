@@ -13,9 +13,11 @@ matter for the bus (bus capacitance, rise time, low level and the pull-up chosen
 On an open-drain bus (I2C, SMBus) the candidates are evaluated together: the
 position's pin values are stacked into arrays and the bus goes through
 :func:`pinlib.engines.opendrain.batch.build` once per group of candidates of the same structure
-(which pins drive, which carry pull-ups...), ``auto`` pull-ups chosen for each.  A
-position on a push-pull bus (SPI, GPIO), or a bridging part, is evaluated one
-candidate at a time by its engine, and the ranking says so.
+(which pins drive, which carry pull-ups...), ``auto`` pull-ups chosen for each.  On a
+push-pull bus (SPI, GPIO) each candidate is evaluated by the engine, the waveform
+edges of many candidates solved together (:mod:`pinlib.studies.ppcandidates`).  A
+bridging part is evaluated one candidate at a time by its engine.  The ranking says
+how each bus went.
 :func:`rank_candidates_slow` evaluates every candidate that way, with
 :meth:`pinlib.model.design.Design.with_parts` and :func:`pinlib.engines.dispatch.check_design`: the
 reference the tests hold the vectorized ranking to.
@@ -43,6 +45,7 @@ from pinlib.library.schema import CATEGORIES, Part
 from pinlib.model.design import Bus, Design, Device
 from pinlib.model.result import STATUSES, BusResult, json_number, worst
 from pinlib.studies.compare import can_serve, positions
+from pinlib.studies.ppcandidates import batched_note, evaluate_batched
 
 __all__ = [
     "FORMAT",
@@ -102,7 +105,8 @@ class Candidate:
     current : bool
         The part the design holds now. [1]
     method : str
-        ``"vectorized"`` or ``"per-candidate"``. [1]
+        ``"vectorized"`` (open-drain arrays), ``"batched"`` (push-pull: edges solved
+        together, checks by the engine) or ``"per-candidate"``. [1]
     margins : tuple of float
         Every margin that counts for the ranking, smallest first (−inf for one that
         cannot be computed); candidates of equal status are ordered by these in
@@ -462,9 +466,12 @@ def rank_candidates(design: Design, ref: str, *, categories=None, progress=None)
     current = places[0][1].part_id
     fast_buses = [bus for bus, dev in places
                   if bus.protocol in OPEN_DRAIN_PROTOCOLS and not dev.is_bridge]
-    slow_buses = [bus.id for bus, _ in places if bus not in fast_buses]
-    table = _Summaries(design, ref, parts, places, slow_buses)
-    table.notes += _one_at_a_time_notes(places, fast_buses)
+    pp_buses = [bus for bus, dev in places
+                if bus.protocol not in OPEN_DRAIN_PROTOCOLS and not dev.is_bridge]
+    slow_buses = [bus.id for bus, _ in places if bus not in fast_buses + pp_buses]
+    table = _Summaries(design, ref, parts, places, slow_buses, pp_buses)
+    table.notes += _one_at_a_time_notes(places, fast_buses + pp_buses)
+    table.notes += [batched_note(bus) for bus in pp_buses]
     collected = {bus.id: od.collect(bus, design) for bus in fast_buses}
     # a unit is one part tried at one position (a part that stands at two places counts
     # twice)
@@ -472,6 +479,8 @@ def rank_candidates(design: Design, ref: str, *, categories=None, progress=None)
                       unit="part-position", enabled=progress) as bar:
         for bus in fast_buses:
             table.add_fast_bus(bus, collected[bus.id], bar)
+        if pp_buses:
+            table.add_pp_buses(bar)
         if slow_buses:
             table.add_slow_buses(bar)
     out = [table.candidate(p, current) for p in parts]
@@ -482,30 +491,24 @@ def rank_candidates(design: Design, ref: str, *, categories=None, progress=None)
 
 
 def _one_at_a_time_notes(places, fast_buses: list) -> list[str]:
-    """A note for each bus whose candidates are evaluated one at a time, and why."""
-    notes = []
-    for bus, dev in places:
-        if bus in fast_buses:
-            continue
-        why = ("a bridging part" if dev.is_bridge else
-               f"the {bus.protocol} engine simulates each edge in time and has no vectorized "
-               "model yet")
-        notes.append(f"bus {bus.id}: candidates evaluated one at a time ({why})")
-    return notes
+    """A note for each bus whose candidates are evaluated one at a time (a bridging part)."""
+    return [f"bus {bus.id}: candidates evaluated one at a time (a bridging part)"
+            for bus, _ in places if bus not in fast_buses]
 
 
 class _Summaries:
     """A ranking being filled: per candidate and bus its summary (status code, margin,
     where, figures, margins), each candidate's method and first error, and the notes."""
 
-    def __init__(self, design: Design, ref: str, parts: list[Part], places, slow_buses: list):
+    def __init__(self, design: Design, ref: str, parts: list[Part], places, slow_buses: list,
+                 pp_buses: list):
         self.design, self.ref, self.parts, self.places = design, ref, parts, places
-        self.slow_buses = slow_buses
+        self.slow_buses, self.pp_buses = slow_buses, pp_buses
         self.notes: list[str] = []
         # per candidate and bus: (status code, margin, where, figures) or an error
         self.per: dict[str, dict] = {p.id: {} for p in parts}
-        self.methods = {p.id: "vectorized" if not slow_buses else "per-candidate"
-                        for p in parts}
+        method = "per-candidate" if slow_buses else "batched" if pp_buses else "vectorized"
+        self.methods = {p.id: method for p in parts}
         self.errors: dict[str, PinlibError] = {}
 
     def add_fast_bus(self, bus: Bus, collected, bar) -> None:
@@ -540,6 +543,18 @@ class _Summaries:
                 continue
             st, m, w, f, ms = _summary_of([res], [(bus, dev)])
             self.per[p.id][bus.id] = (STATUSES.index(st), m, w, f[bus.id], ms)
+
+    def add_pp_buses(self, bar) -> None:
+        """Every candidate on the push-pull buses, their edges solved in batches."""
+        sub = [(b, d) for b, d in self.places if b in self.pp_buses]
+        for p, got in evaluate_batched(self.design, self.ref, self.parts, self.pp_buses):
+            if isinstance(got, PinlibError):
+                self.errors.setdefault(p.id, got)
+            else:
+                for r, pl in zip(got, sub, strict=True):
+                    st, m, w, f, ms = _summary_of([r], [pl])
+                    self.per[p.id][r.id] = (STATUSES.index(st), m, w, f[r.id], ms)
+            bar.update(len(self.pp_buses))
 
     def add_slow_buses(self, bar) -> None:
         """Every candidate on the buses evaluated one at a time, the design rebuilt with it."""

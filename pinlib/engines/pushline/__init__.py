@@ -78,6 +78,7 @@ from pinlib.engines.pushline.drive import (  # noqa: F401
     drive_case,
 )
 from pinlib.engines.pushline.line import (  # noqa: F401
+    LineInputs,
     analyse_line,
 )
 from pinlib.engines.pushline.pins import (  # noqa: F401
@@ -140,6 +141,7 @@ __all__ = [
     "drive_case",
     "auto_series_resistor",
     "analyse_line",
+    "LineInputs",
     "endpoint",
     "device_supply",
     "is_bridge",

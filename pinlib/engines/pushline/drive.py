@@ -8,6 +8,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 from pinlib.core.errors import PinlibError
+from pinlib.engines import memo
 from pinlib.engines.pushline.pins import Endpoint, Flight
 from pinlib.engines.pushline.rules import _REF_LEVEL
 from pinlib.engines.pushline.sections import Stretch, line_model, needs_distributed
@@ -128,17 +129,19 @@ def _open_drain_model(pin: Pin, vdd: float, r_pullup: float, notes: list) -> drv
 
 
 def _driver_model(ep: Endpoint, notes: list) -> drv.Driver:
-    with warnings.catch_warnings(record=True) as caught:
-        warnings.simplefilter("always")
-        try:
-            model = drv.driver_from_pin(ep.pin, ep.vdd)
-        except PinlibError as err:
-            # the pin's values refused at this supply: say whose pin, for the dispatcher to
-            # name the part file and the design line (pinlib.engines.dispatch)
-            err.pin_of = (ep.device.ref, ep.pin_name, ep.vdd)
-            raise
+    try:
+        # within a run, a pin at one supply is modelled once (its warnings kept with it)
+        # (parts by identity, as the line memo: one library serves a run)
+        key = ("pushline.driver_model", ep.device.part_id, ep.pin_name, id(ep.pin),
+               float(ep.vdd))
+        model, caught = memo.remember(key, lambda: _fit_pin(ep.pin, float(ep.vdd)))
+    except PinlibError as err:
+        # the pin's values refused at this supply: say whose pin, for the dispatcher to
+        # name the part file and the design line (pinlib.engines.dispatch)
+        err.pin_of = (ep.device.ref, ep.pin_name, ep.vdd)
+        raise
     for w in caught:
-        notes.append(f"{ep.label}: {w.message}")
+        notes.append(f"{ep.label}: {w}")
     for n in model.notes:
         notes.append(f"{ep.label}: {n}")
     if model.fast is not None:
@@ -147,6 +150,14 @@ def _driver_model(ep: Endpoint, notes: list) -> drv.Driver:
                      "undershoot and ringing; slow corner (r_out, edges) for edge time and "
                      "timing")
     return model
+
+
+def _fit_pin(pin: Pin, vdd: float) -> tuple[drv.Driver, tuple]:
+    """A pin's driver model at ``vdd`` and the texts of the warnings its fit gave."""
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        model = drv.driver_from_pin(pin, vdd)
+    return model, tuple(str(w.message) for w in caught)
 
 
 def _test_load(device: Device) -> float:
@@ -185,8 +196,53 @@ def drive_case(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver
     -------
     DriveCase
     """
-    c_far = sum(p.c_in for p in loads) + extra_c
+    plan = edge_plan(stretches, driver, model, loads, rs, extra_c, long=long,
+                     r_pullup=r_pullup, v_pullup=v_pullup)
     c_test = _test_load(driver.device)
+    rise = simulate_edge(stretches, *plan.rise, distributed=plan.rise_distributed,
+                         edge="rise")
+    fall = simulate_edge(stretches, *plan.fall, distributed=plan.distributed, edge="fall")
+    if driver.pin.drive == "open-drain":
+        rp, r_th = float(r_pullup), plan.fall[0]
+        ref = {"rise": _ref_time(0.0, rp * c_test),
+               "fall": _ref_time(model.t_ramp_fall, r_th * c_test)}
+    else:
+        ref = {"rise": _ref_time(model.t_ramp_rise, model.r_rise * c_test),
+               "fall": _ref_time(model.t_ramp_fall, model.r_fall * c_test)}
+    fast = (None, None)
+    if driver.pin.drive != "open-drain" and model.fast is not None:
+        fast = _fast_edges(stretches, model.fast, rs, plan.c_far, plan.v_high, long)
+    return DriveCase(driver, model, rs, plan.c_far, plan.distributed, rise, fall, ref,
+                     plan.v_low, plan.v_high, *fast)
+
+
+def _ref_time(t_ramp: float, tau: float) -> float:
+    """When a ramp through ``tau`` crosses the timing reference level (once per run). [s]"""
+    return memo.remember(("pushline.ref_time", t_ramp, tau), lambda: float(
+        rc.ramp_rc_crossing(_REF_LEVEL, t_ramp, tau)))
+
+
+@dataclass(frozen=True)
+class EdgePlan:
+    """What :func:`drive_case` solves: each edge as ``(r_source, t_ramp, c_far, v_from,
+    v_to)`` (the arguments of :func:`simulate_edge` after the sections), whether the
+    chain of lines is solved for each, and the line's static levels.  Batched studies
+    read it to solve the same edges together (:mod:`pinlib.engines.pushline.batchsolve`)."""
+
+    rise: tuple
+    fall: tuple
+    distributed: bool
+    rise_distributed: bool
+    c_far: float
+    v_low: float
+    v_high: float
+
+
+def edge_plan(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver,
+              loads: Sequence[Endpoint], rs: float, extra_c: float, *, long: bool,
+              r_pullup: float | None = None, v_pullup: float | None = None) -> EdgePlan:
+    """The edges :func:`drive_case` solves for these inputs (same arguments)."""
+    c_far = sum(p.c_in for p in loads) + extra_c
     if driver.pin.drive == "open-drain":
         rp = float(r_pullup)
         v_hi = float(v_pullup)
@@ -197,29 +253,16 @@ def drive_case(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver
         v_lo = v_hi * r_sink / (r_sink + rp)
         r_th = r_sink * rp / (r_sink + rp)
         distributed = needs_distributed(stretches, r_th, c_far, long)
-        fall = simulate_edge(stretches, r_th, model.t_ramp_fall, c_far, v_hi, v_lo,
-                             distributed=distributed, edge="fall")
         # The pull-up (>> Z0) charges the line as one capacitance.
-        rise = simulate_edge(stretches, rp, 0.0, c_far, v_lo, v_hi, distributed=False,
-                             edge="rise")
-        ref = {"rise": float(rc.ramp_rc_crossing(_REF_LEVEL, 0.0, rp * c_test)),
-               "fall": float(rc.ramp_rc_crossing(_REF_LEVEL, model.t_ramp_fall,
-                                                 r_th * c_test))}
-        return DriveCase(driver, model, rs, c_far, distributed, rise, fall, ref, v_lo, v_hi)
+        return EdgePlan((rp, 0.0, c_far, v_lo, v_hi), (r_th, model.t_ramp_fall, c_far, v_hi,
+                                                       v_lo), distributed, False, c_far,
+                        v_lo, v_hi)
     vdd = driver.vdd
     distributed = needs_distributed(stretches, min(model.r_rise, model.r_fall) + rs, c_far,
                                     long)
-    rise = simulate_edge(stretches, model.r_rise + rs, model.t_ramp_rise, c_far, 0.0, vdd,
-                         distributed=distributed, edge="rise")
-    fall = simulate_edge(stretches, model.r_fall + rs, model.t_ramp_fall, c_far, vdd, 0.0,
-                         distributed=distributed, edge="fall")
-    ref = {"rise": float(rc.ramp_rc_crossing(_REF_LEVEL, model.t_ramp_rise,
-                                             model.r_rise * c_test)),
-           "fall": float(rc.ramp_rc_crossing(_REF_LEVEL, model.t_ramp_fall,
-                                             model.r_fall * c_test))}
-    fast = (None, None) if model.fast is None else _fast_edges(stretches, model.fast, rs,
-                                                                 c_far, vdd, long)
-    return DriveCase(driver, model, rs, c_far, distributed, rise, fall, ref, 0.0, vdd, *fast)
+    return EdgePlan((model.r_rise + rs, model.t_ramp_rise, c_far, 0.0, vdd),
+                    (model.r_fall + rs, model.t_ramp_fall, c_far, vdd, 0.0), distributed,
+                    distributed, c_far, 0.0, vdd)
 
 
 def _fast_edges(stretches: Sequence[Stretch], fast: drv.Driver, rs: float, c_far: float,

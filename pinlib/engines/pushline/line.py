@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import warnings
 from collections.abc import Sequence
+from dataclasses import dataclass
 
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError
@@ -24,6 +25,28 @@ from pinlib.engines.pushline.waves import _TooManySteps
 from pinlib.model.design import Line
 from pinlib.model.result import Check, LineResult, check_max, rule_of_thumb
 from pinlib.physics import driver as drv
+
+
+@dataclass(frozen=True)
+class LineInputs:
+    """The arguments of one :func:`analyse_line` call, gathered before it is made (a
+    batched study reads every variant's first, :mod:`pinlib.engines.pushline.batchsolve`)."""
+
+    signal: str
+    line: Line
+    drivers: tuple
+    loads: tuple
+    receivers: tuple
+    clock: float | None = None
+    clock_line: bool = False
+    warn_margin: float = 0.10
+    bus_id: str | None = None
+
+    def analyse(self) -> LineAnalysis:
+        """:func:`analyse_line` of these inputs."""
+        return analyse_line(self.signal, self.line, self.drivers, self.loads,
+                            self.receivers, clock=self.clock, clock_line=self.clock_line,
+                            warn_margin=self.warn_margin, bus_id=self.bus_id)
 
 
 def analyse_line(signal: str, line: Line, drivers: Sequence[Endpoint],
@@ -123,7 +146,7 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
     """The line analysis in its steps: sections, driver models, electrical length, the
     series resistor and the final cases, checks, figures."""
     notes = res.notes
-    stretches = stretches_of(line.sections)
+    stretches = line_stretches(line)
     a = LineAnalysis(signal, line, stretches, list(drivers), list(loads), list(receivers),
                      result=res)
     if not a.drivers:
@@ -141,6 +164,27 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
     _add_checks(a, res, clock, clock_line, warn_margin)
     _add_figures(a, res)
     return a
+
+
+def line_stretches(line: Line) -> list:
+    """The line's sections as :func:`stretches_of` gives them, once per run for one line;
+    a trace model's warnings are given again each time (the line's notes carry them)."""
+    key = ("pushline.stretches", line.sections)
+    try:
+        hash(key)
+    except TypeError:
+        return stretches_of(line.sections)
+
+    def compute():
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            got = stretches_of(line.sections)
+        return got, tuple(caught)
+
+    got, caught = memo.remember(key, compute)
+    for w in caught:
+        warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
+    return list(got)
 
 
 def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
@@ -175,15 +219,21 @@ def _electrical_length(a: LineAnalysis, notes: list) -> None:
     for d in a.drivers:
         m = a.models[d.ref]
         c_pins = sum(p.c_in for p in _others(a.loads, d)) + a.line.extra_capacitance
-        alone.append(float(drv.edge_time(m.r_fall, m.t_ramp_fall, c_pins)))
+        alone.append(_edge_alone(m.r_fall, m.t_ramp_fall, c_pins))
         if d.pin.drive != "open-drain":
-            alone.append(float(drv.edge_time(m.r_rise, m.t_ramp_rise, c_pins)))
+            alone.append(_edge_alone(m.r_rise, m.t_ramp_rise, c_pins))
     a.edge_alone = min(alone)
     a.long, a.ratio = line_model(a.stretches, a.edge_alone)
     notes.append(f"one-way delay {_fmt(a.delay, 's')} is {a.ratio:.2f} of the driver's "
                  f"{_fmt(a.edge_alone, 's')} edge into the pins alone: "
                  f"{'electrically long' if a.long else 'electrically short'} "
                  f"({LONG_LINE_RULE})")
+
+
+def _edge_alone(r: float, t_ramp: float, c_pins: float) -> float:
+    """A driver's 10-90 % edge into the pins alone (once per run for equal inputs). [s]"""
+    return memo.remember(("pushline.edge_alone", r, t_ramp, c_pins),
+                         lambda: float(drv.edge_time(r, t_ramp, c_pins)))
 
 
 def _add_checks(a: LineAnalysis, res: LineResult, clock, clock_line, warn_margin) -> None:

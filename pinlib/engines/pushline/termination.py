@@ -73,10 +73,7 @@ def _auto_series(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
     # Only what a series resistor can cure decides (a slow edge or a level it cannot),
     # so the choice does not depend on the clock.
     clean = all(c.status != "fail" for c in bare_checks if c.id in _TERMINATION_CURES)
-    r_drv = min(0.5 * (a.models[d.ref].r_rise + a.models[d.ref].r_fall)
-                for d in a.drivers if d.pin.drive != "open-drain") \
-        if any(d.pin.drive != "open-drain" for d in a.drivers) else math.nan
-    a.rs_ideal = a.z0 - r_drv if math.isfinite(a.z0) and math.isfinite(r_drv) else None
+    r_drv, a.rs_ideal = auto_ideal(a)
     if (not a.long and clean) or a.rs_ideal is None:
         a.rs, a.cases = 0.0, bare
         why = ("electrically short, and no overshoot, undershoot or ringing check "
@@ -95,6 +92,15 @@ def _auto_series(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
         a.cases = bare
         notes.append(f"auto series resistor: none (the driver's {_fmt(r_drv, 'Ω')} "
                      f"already matches or exceeds Z0 {_fmt(a.z0, 'Ω')})")
+
+
+def auto_ideal(a: LineAnalysis) -> tuple[float, float | None]:
+    """The driver resistance "auto" matches (the strongest push-pull driver's mean of
+    rise and fall; NaN with none) and ``Z0 - r_out`` (None when either is unknown). [Ω]"""
+    r_drv = min(0.5 * (a.models[d.ref].r_rise + a.models[d.ref].r_fall)
+                for d in a.drivers if d.pin.drive != "open-drain") \
+        if any(d.pin.drive != "open-drain" for d in a.drivers) else math.nan
+    return r_drv, (a.z0 - r_drv if math.isfinite(a.z0) and math.isfinite(r_drv) else None)
 
 
 def _termination_check(a: LineAnalysis) -> Check:

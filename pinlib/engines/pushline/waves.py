@@ -121,8 +121,7 @@ def simulate_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float,
     that would need more than :data:`MAX_TIME_STEPS` steps is refused with an
     InputError.
     """
-    key = ("pushline.unit_edge", tuple((s.z0, s.td, s.c) for s in stretches),
-           r_source, t_ramp, c_far, bool(distributed))
+    key = unit_edge_key(stretches, r_source, t_ramp, c_far, distributed)
     t, unit, settled = memo.remember(
         key, lambda: _unit_edge(stretches, r_source, t_ramp, c_far, distributed))
     swing = v_to - v_from
@@ -134,10 +133,47 @@ def simulate_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float,
     return EdgeWave(edge, t.copy(), v, v_from, v_to, t_edge, over, under, bool(settled))
 
 
-def _unit_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float, c_far: float,
-               distributed: bool) -> tuple[np.ndarray, np.ndarray, bool]:
-    """The time grid, the unit response (0 -> 1) at the far end and whether it settled,
-    for :func:`simulate_edge` (which the level of the edge only scales and shifts)."""
+def unit_edge_key(stretches: Sequence[Stretch], r_source: float, t_ramp: float,
+                  c_far: float, distributed: bool) -> tuple:
+    """The exact key under which :func:`simulate_edge` keeps a unit response within a
+    run (:mod:`pinlib.engines.memo`): a value stored under it by a batched solve
+    (:mod:`pinlib.engines.pushline.batchsolve`) is taken as the engine's own."""
+    return ("pushline.unit_edge", tuple((s.z0, s.td, s.c) for s in stretches),
+            r_source, t_ramp, c_far, bool(distributed))
+
+
+@dataclass(frozen=True)
+class EdgeGrid:
+    """The time grid of one unit edge and the circuit solved on it.
+
+    Attributes
+    ----------
+    t : numpy.ndarray
+        Sample times, ``arange(n + 1) * dt``. [s]
+    sections : list of (float, float)
+        ``(z0, td)`` of the sections with a delay. [Ω, s]
+    c_lumped_far : float
+        Far-end capacitance with the sections that have no delay. [F]
+    c_total : float
+        Every capacitance of the line and its loads (the lumped model's load). [F]
+    distributed : bool
+        Whether the chain of lines is solved. [1]
+    t_end : float
+        The record's length asked for. [s]
+    """
+
+    t: np.ndarray
+    sections: list
+    c_lumped_far: float
+    c_total: float
+    distributed: bool
+    t_end: float
+
+
+def edge_grid(stretches: Sequence[Stretch], r_source: float, t_ramp: float, c_far: float,
+              distributed: bool, t_end: float | None = None) -> EdgeGrid:
+    """The grid :func:`simulate_edge` solves a unit edge on (see its notes): the record's
+    first length unless ``t_end`` is given (each lengthening multiplies it by 3)."""
     c_line = sum(s.c for s in stretches)
     c_total = c_line + c_far
     tau = r_source * c_total
@@ -145,28 +181,42 @@ def _unit_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float, c_f
     c_lumped_far = c_far + sum(s.c for s in stretches if s.td <= 0.0)
     delays = [td for _, td in sections]
     distributed = distributed and bool(sections)
-    t_end = t_ramp + _SETTLE_TAUS * tau + (_SETTLE_DELAYS * sum(delays) if distributed else 0.0)
-    t_end = max(t_end, 1e-12)
+    if t_end is None:
+        t_end = t_ramp + _SETTLE_TAUS * tau + (_SETTLE_DELAYS * sum(delays) if distributed
+                                               else 0.0)
+        t_end = max(t_end, 1e-12)
+    limits = [t_end / _MIN_STEPS]
+    if t_ramp > 0:
+        limits.append(t_ramp / _STEPS_PER_RAMP)
+    if tau > 0:
+        limits.append(tau / _STEPS_PER_TAU)
+    if distributed:
+        limits.append(min(delays) / _STEPS_PER_DELAY)
+    dt = max(min(limits), t_end / _MAX_STEPS)
+    if distributed:
+        d_min = min(delays)
+        dt = d_min / math.ceil(d_min / dt)
+    return EdgeGrid(_grid(t_end, dt), sections, c_lumped_far, c_total, distributed, t_end)
+
+
+def is_settled(unit: np.ndarray) -> bool:
+    """Whether a unit response ends within 1 % of its final level."""
+    return bool(abs(unit[-1] - 1.0) <= _SETTLED)
+
+
+def _unit_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float, c_far: float,
+               distributed: bool) -> tuple[np.ndarray, np.ndarray, bool]:
+    """The time grid, the unit response (0 -> 1) at the far end and whether it settled,
+    for :func:`simulate_edge` (which the level of the edge only scales and shifts)."""
+    g = edge_grid(stretches, r_source, t_ramp, c_far, distributed)
     for _ in range(_MAX_EXTENSIONS + 1):
-        limits = [t_end / _MIN_STEPS]
-        if t_ramp > 0:
-            limits.append(t_ramp / _STEPS_PER_RAMP)
-        if tau > 0:
-            limits.append(tau / _STEPS_PER_TAU)
-        if distributed:
-            limits.append(min(delays) / _STEPS_PER_DELAY)
-        dt = max(min(limits), t_end / _MAX_STEPS)
-        if distributed:
-            d_min = min(delays)
-            dt = d_min / math.ceil(d_min / dt)
-        t = _grid(t_end, dt)
-        if distributed:
-            unit = wf.distributed_response(t, 1.0, t_ramp, r_source, sections,
-                                           c_lumped_far).v
+        if g.distributed:
+            unit = wf.distributed_response(g.t, 1.0, t_ramp, r_source, g.sections,
+                                           g.c_lumped_far).v
         else:
-            unit = wf.lumped_response(t, 1.0, t_ramp, r_source, c_total).v
-        settled = abs(unit[-1] - 1.0) <= _SETTLED
+            unit = wf.lumped_response(g.t, 1.0, t_ramp, r_source, g.c_total).v
+        settled = is_settled(unit)
         if settled:
             break
-        t_end *= 3.0
-    return t, unit, bool(settled)
+        g = edge_grid(stretches, r_source, t_ramp, c_far, distributed, 3.0 * g.t_end)
+    return g.t, unit, bool(settled)

@@ -86,6 +86,7 @@ from __future__ import annotations
 from pinlib.engines.spi.analysis import (  # noqa: F401
     SpiAnalysis,
     spi_analysis,
+    spi_line_inputs,
 )
 from pinlib.engines.spi.budget import (  # noqa: F401
     ControllerTiming,
@@ -136,6 +137,7 @@ __all__ = [
     "budget_terms",
     "SpiAnalysis",
     "spi_analysis",
+    "spi_line_inputs",
     "evaluate_spi",
     "max_clock_vs_length",
     "max_clock_vs_t_valid",

@@ -11,7 +11,7 @@ from pinlib.core.errors import DesignError
 from pinlib.engines.pushline import (
     EDGE_FRACTION,
     SIGNAL_FUNCTION,
-    analyse_line,
+    LineInputs,
     endpoint,
     is_bridge,
 )
@@ -122,6 +122,36 @@ def _timing_value(device: Device, name: str) -> float | None:
 
 
 def _spi_lines(bus: Bus, design: Design) -> tuple[dict, Device, list, list, list]:
+    inputs, controller, peripherals, bridges, notes = _line_inputs(bus, design)
+    out = {sig: li.analyse() for sig, li in inputs.items()}
+    return out, controller, peripherals, bridges, notes
+
+
+def spi_line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
+    """The inputs of every line analysis :func:`spi_analysis` makes on the bus, in its
+    order (a batched study solves their edges first:
+    :func:`pinlib.engines.pushline.batchsolve.prefetch`).
+
+    Parameters
+    ----------
+    bus : Bus
+        An ``spi`` bus of ``design``. [1]
+    design : Design
+        The loaded design. [1]
+
+    Returns
+    -------
+    list of LineInputs
+
+    Raises
+    ------
+    DesignError
+        As :func:`spi_analysis`.
+    """
+    return list(_line_inputs(bus, design)[0].values())
+
+
+def _line_inputs(bus: Bus, design: Design) -> tuple[dict, Device, list, list, list]:
     controllers = bus.controllers
     controller = controllers[0]
     notes = []
@@ -155,8 +185,9 @@ def _spi_lines(bus: Bus, design: Design) -> tuple[dict, Device, list, list, list
             if not drivers:
                 notes.append("cipo is routed but no peripheral drives it; line not evaluated")
                 continue
-        out[sig] = analyse_line(sig, line, drivers, loads, receivers, clock=bus.clock,
-                                clock_line=(sig == "sclk"), warn_margin=warn, bus_id=bus.id)
+        out[sig] = LineInputs(sig, line, tuple(drivers), tuple(loads), tuple(receivers),
+                              clock=bus.clock, clock_line=(sig == "sclk"), warn_margin=warn,
+                              bus_id=bus.id)
     return out, controller, peripherals, bridges, notes
 
 

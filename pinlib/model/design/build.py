@@ -46,7 +46,9 @@ class Design:
 
     def with_parts(self, swaps: dict[str, str]) -> Design:
         """The same design with parts substituted by reference: ``{"U4": "eeprom-alt"}``."""
-        return _build(self._raw, self.path, self.library, self.text, swaps)
+        # the file's line index is the same for every swap (read-only): made once
+        return _build(self._raw, self.path, self.library, self.text, swaps,
+                      getattr(self, "_index", None))
 
     _raw: RawDesign | None = None
 
@@ -69,6 +71,7 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict,
     design = Design(raw.title, Path(path) if path else None, tuple(buses), r.geometries,
                     library, raw.warn_margin, raw.distribution, raw.description, text)
     object.__setattr__(design, "_raw", raw)
+    object.__setattr__(design, "_index", index)
     return design
 
 

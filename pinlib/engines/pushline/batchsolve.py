@@ -1,0 +1,163 @@
+"""The edges of many line analyses solved together, ahead of the analyses.
+
+A study that evaluates many variants of one bus (the candidates of a position) makes
+the same line analyses again and again with one pin changed; most of each analysis's
+time is its waveform solves, one :func:`pinlib.physics.waveform.distributed_response`
+call per edge.  :func:`prefetch` takes the inputs of every variant's line analyses
+(:class:`~pinlib.engines.pushline.line.LineInputs`), works out the edges each will solve
+with the engine's own steps (driver models, electrical length, :func:`edge_plan`, the
+grid of :func:`edge_grid`), and solves the edges that share a chain of sections and a
+time step in one call: the grid ``arange(n + 1) * dt`` of a shorter record is the start
+of a longer one's, and the solver is causal, so each edge is the first samples of the
+longest record of its group.  Each result goes into the run's memo under the exact key
+:func:`~pinlib.engines.pushline.waves.simulate_edge` asks for, and the analyses made
+afterwards take it there; an edge the prefetch did not solve (a lumped edge, a record
+that had not settled, a solve that warned, a series resistor "auto" chose on a short
+line) the engine solves itself, as it would without the prefetch.  So every figure is the
+engine's, from the same grid and solver; only rounding inside a batched solve can
+differ (a few units in the last place).
+
+It needs an active :func:`pinlib.engines.memo.run_scope` (without one it does nothing),
+and the scope holds every edge solved until it ends: callers prefetch a bounded number
+of variants per scope.
+"""
+
+from __future__ import annotations
+
+import warnings
+from collections.abc import Iterable
+
+import numpy as np
+
+from pinlib.core.errors import PinlibError
+from pinlib.engines import memo
+from pinlib.engines.pushline.analysis import LineAnalysis, _others
+from pinlib.engines.pushline.drive import edge_plan
+from pinlib.engines.pushline.line import (
+    LineInputs,
+    _driver_models,
+    _electrical_length,
+    line_stretches,
+)
+from pinlib.engines.pushline.termination import auto_ideal, auto_series_resistor
+from pinlib.engines.pushline.waves import edge_grid, is_settled, unit_edge_key
+from pinlib.model.result import LineResult
+from pinlib.physics import waveform as wf
+
+__all__ = ["prefetch", "MAX_ELEMENTS"]
+
+#: Samples times edges in one batched solve, at most (about 32 MB per array the solver
+#: keeps; its own cap on a run's matrices then leaves the run length alone).
+MAX_ELEMENTS = 4_000_000
+
+
+def prefetch(inputs: Iterable[LineInputs]) -> int:
+    """Solve the edges the analyses of ``inputs`` will ask for, batched, into the run's
+    memo (see the module notes).
+
+    Parameters
+    ----------
+    inputs : iterable of LineInputs
+        The line analyses about to be made. [1]
+
+    Returns
+    -------
+    int
+        Edges solved and stored. [1]
+    """
+    if not memo.active():
+        return 0
+    requests = {}
+    for li in inputs:
+        for req in _requests(li):
+            key = unit_edge_key(*req)
+            if key not in requests and not memo.known(key):
+                requests[key] = req
+    groups: dict[tuple, list] = {}
+    for key, (stretches, r_source, t_ramp, c_far, distributed) in requests.items():
+        try:
+            g = edge_grid(stretches, r_source, t_ramp, c_far, distributed)
+        except PinlibError:
+            continue  # too many steps: the engine names the line
+        if g.distributed:  # a lumped edge is a closed form, cheap on its own
+            groups.setdefault((tuple(g.sections), float(g.t[1])), []).append(
+                (key, g, r_source, t_ramp))
+    stored = 0
+    for (sections, _), members in groups.items():
+        members.sort(key=lambda m: m[1].t.size)
+        start = 0
+        while start < len(members):
+            end = _batch_end(members, start)
+            stored += _solve(list(sections), members[start:end])
+            start = end
+    return stored
+
+
+def _batch_end(members: list, start: int) -> int:
+    """The end of the batch from ``start`` (records sorted by length): at most
+    :data:`MAX_ELEMENTS` samples in all, each record padded to the batch's longest."""
+    end = start + 1
+    while end < len(members) and (end - start + 1) * members[end][1].t.size <= MAX_ELEMENTS:
+        end += 1
+    return end
+
+
+def _solve(sections: list, batch: list) -> int:
+    """One distributed solve of a batch of unit edges on the longest of their grids."""
+    t = batch[-1][1].t
+    if not all(np.array_equal(t[:g.t.size], g.t) for _, g, _, _ in batch):
+        return 0  # not one grid: left to the engine
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        try:
+            v = wf.distributed_response(
+                t, 1.0, np.array([m[3] for m in batch]), np.array([m[2] for m in batch]),
+                sections, np.array([m[1].c_lumped_far for m in batch])).v
+        except PinlibError:
+            return 0
+    if caught:
+        return 0  # the engine solves these itself, so that its notes carry the warning
+    stored = 0
+    for j, (key, g, _, _) in enumerate(batch):
+        unit = v[j, :g.t.size]  # views of the batch (the engine copies what it keeps)
+        if is_settled(unit):
+            memo.keep(key, (t[:g.t.size], unit, True))
+            stored += 1
+    return stored
+
+
+def _requests(li: LineInputs) -> list[tuple]:
+    """The edges the analysis of ``li`` will solve: ``(stretches, r_source, t_ramp,
+    c_far, distributed)`` each, by the engine's own steps; none when a step refuses (the
+    analysis itself then says why)."""
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")  # the analysis notes its own warnings
+            a = LineAnalysis(li.signal, li.line, line_stretches(li.line),
+                             list(li.drivers), list(li.loads), list(li.receivers),
+                             result=LineResult(signal=li.signal))
+            pullup = _driver_models(a, a.result)
+            if not a.drivers:
+                return []
+            _electrical_length(a, [])
+    except PinlibError:
+        return []
+    setting = li.line.series_resistor
+    options = [0.0] if setting in ("auto", "none", None) else [float(setting)]
+    if setting == "auto" and a.long:
+        # a long line: "auto" chooses Z0 - r_out (a short one only when a check fails)
+        r_drv, ideal = auto_ideal(a)
+        if ideal is not None:
+            rs = float(auto_series_resistor(a.z0, r_drv))
+            if rs > 0:
+                options.append(rs)
+    out = []
+    for rs in options:
+        for d in a.drivers:
+            rp, vp = pullup.get(d.ref, (None, None))
+            plan = edge_plan(a.stretches, d, a.models[d.ref], _others(a.loads, d), rs,
+                             li.line.extra_capacitance, long=a.long, r_pullup=rp,
+                             v_pullup=vp)
+            out.append((a.stretches, *plan.rise[:3], plan.rise_distributed))
+            out.append((a.stretches, *plan.fall[:3], plan.distributed))
+    return out

@@ -1,0 +1,83 @@
+"""The candidates of a position on push-pull buses (SPI, GPIO), their edges solved together.
+
+Each candidate is evaluated by the engine (:func:`pinlib.engines.dispatch.evaluate_bus`
+on the design with the part in the position), as :func:`pinlib.studies.candidates.
+rank_candidates_slow` does, so every check and figure is the engine's.  What is batched
+is the waveform solves, most of a push-pull evaluation's time: the candidates are taken
+:data:`CHUNK` at a time, the inputs of every line analysis each will make are gathered
+(:func:`pinlib.engines.pushpull.line_inputs`) and their edges solved together
+(:func:`pinlib.engines.pushline.batchsolve.prefetch`, one solver call per chain of
+sections and time step) into a memo that lives for the chunk; the engine's analyses
+then take them from there.  Edges the prefetch leaves to the engine are solved one at a
+time: a lumped line's (closed form), a record that had to be lengthened to settle, the
+boards at the corners of a bus's tolerances (each candidate's corners are found by its own
+results), and a series resistor "auto" chose on a short line.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+
+from pinlib.core.errors import PinlibError
+from pinlib.engines import memo
+from pinlib.engines.dispatch import evaluate_bus
+from pinlib.engines.pushline.batchsolve import prefetch
+from pinlib.engines.pushpull import line_inputs
+from pinlib.library.schema import Part
+from pinlib.model.design import Bus, Design
+
+__all__ = ["CHUNK", "evaluate_batched", "batched_note"]
+
+#: Candidates whose edges are solved together (and held in memory until their
+#: evaluations end): a few tens of megabytes of waveforms.
+CHUNK = 64
+
+
+def evaluate_batched(design: Design, ref: str, parts: list[Part],
+                     buses: list[Bus]) -> Iterator[tuple[Part, list | PinlibError]]:
+    """Each candidate's engine results on ``buses``, their edges solved in batches.
+
+    Parameters
+    ----------
+    design : Design
+        The design. [1]
+    ref : str
+        The position. [1]
+    parts : list of Part
+        The candidates. [1]
+    buses : list of Bus
+        Push-pull buses of the position (no bridging part). [1]
+
+    Yields
+    ------
+    (Part, list of BusResult or PinlibError)
+        In the order of ``parts``: the results in the order of ``buses``, or the error
+        the design or an engine raised with the part in the position.
+    """
+    for start in range(0, len(parts), CHUNK):
+        chunk = parts[start:start + CHUNK]
+        with memo.run_scope():
+            swapped, inputs = {}, []
+            for p in chunk:
+                try:
+                    sw = swapped[p.id] = design.with_parts({ref: p.id})
+                    for b in buses:
+                        inputs += line_inputs(sw.bus(b.id), sw)
+                except PinlibError:
+                    continue  # the evaluation below meets it again and reports it
+            prefetch(inputs)
+            done = []  # yielded after the scope ends: no memo outlives the chunk
+            for p in chunk:
+                try:
+                    sw = swapped.get(p.id) or design.with_parts({ref: p.id})
+                    with memo.transient():  # its own solves (corners...) go with it
+                        done.append((p, [evaluate_bus(sw.bus(b.id), sw) for b in buses]))
+                except PinlibError as err:
+                    done.append((p, err))
+        yield from done
+
+
+def batched_note(bus: Bus) -> str:
+    """What the ranking says of a push-pull bus whose candidates go this way."""
+    return (f"bus {bus.id}: each candidate evaluated by the {bus.protocol} engine, the "
+            f"edges of up to {CHUNK} candidates solved together")
