@@ -1135,6 +1135,65 @@ def _(env):
                   env)
 
 
+def _routed(route: str, extra: str = ""):
+    """SPI_BUS with its SCLK routed (invented test data)."""
+    return SPI_BUS.replace('lines.sclk = { length = "3 cm", geometry = "g" }',
+                           f"lines.sclk = {{ {extra}route = [{route}] }}")
+
+
+@case("ROUTE_OR_STRETCH")
+def _(env):
+    return _fails(lambda e: e.design(_routed(
+        '{ from = "U1", to = "U7", length = "3 cm", geometry = "g" }', 'length = "1 cm", ')),
+        env)
+
+
+@case("ROUTE_ON_OPEN_DRAIN")
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS.replace(
+        'trace = { length = "5 cm", geometry = "g" }',
+        'trace = { route = [{ from = "U1", to = "U2", length = "5 cm", geometry = "g" }] }')),
+        env)
+
+
+@case("TOO_MANY_ROUTE_STRETCHES")
+def _(env):
+    many = ", ".join(f'{{ from = "J{i}", to = "J{i + 1}", length = "1 mm", geometry = "g" }}'
+                     for i in range(worklimits.MAX_ROUTE_STRETCHES + 1))
+    return _fails(lambda e: e.design(_routed(many)), env)
+
+
+@case("ROUTE_CLOSES_LOOP")
+def _(env):
+    return _fails(lambda e: e.design(_routed(
+        '{ from = "U1", to = "U7", length = "3 cm", geometry = "g" }, '
+        '{ from = "U7", to = "U1", length = "3 cm", geometry = "g" }')), env)
+
+
+@case("ROUTE_NOT_CONNECTED")
+def _(env):
+    return _fails(lambda e: e.design(_routed(
+        '{ from = "U1", to = "U7", length = "3 cm", geometry = "g" }, '
+        '{ from = "J1", to = "J2", length = "3 cm", geometry = "g" }')), env)
+
+
+@case("ROUTE_MISSES_DEVICE")
+def _(env):
+    return _fails(lambda e: e.design(_routed(
+        '{ from = "U1", to = "J1", length = "3 cm", geometry = "g" }')), env)
+
+
+@case("ROUTE_DEVICE_NOT_ON_LINE")
+def _(env):
+    bus = _routed('{ from = "U1", to = "U7", length = "3 cm", geometry = "g" }')
+    bus = bus.replace('lines.sclk', 'lines.cipo = { route = [{ from = "U1", to = "U8", '
+                      'length = "1 cm", geometry = "g" }, { from = "U8", to = "U7", '
+                      'length = "1 cm", geometry = "g" }] }\nlines.sclk')
+    bus = bus.replace('{ ref = "U7", part = "nor-flash-spi" },',
+                      '{ ref = "U7", part = "nor-flash-spi" },\n  { ref = "U8", part = "dac-spi" },')
+    return _fails(lambda e: e.design(bus), env)
+
+
 @case("TOO_MANY_SECTIONS")
 def _(env):
     stretch = '{ length = "1 mm", geometry = "g" }'

@@ -180,6 +180,13 @@ SPI_NEEDS_SCLK = "an SPI bus needs its SCLK routing"
 # the limits of pinlib/core/worklimits.py
 TOO_MANY_DEVICES = "too many devices on one {protocol} bus"
 TOO_MANY_SECTIONS = "too many sections on one trace"
+ROUTE_OR_STRETCH = "give either a route or a stretch (length, sections...), not both"
+ROUTE_ON_OPEN_DRAIN = "an open-drain bus's trace takes no route"
+TOO_MANY_ROUTE_STRETCHES = "too many stretches in one route"
+ROUTE_CLOSES_LOOP = "this stretch closes a loop in the route: its two points are already joined"
+ROUTE_NOT_CONNECTED = "this stretch joins nothing of the rest of the route"
+ROUTE_MISSES_DEVICE = "a device on the line is at no point of its route"
+ROUTE_DEVICE_NOT_ON_LINE = "the point names a device of the bus that is not on this line"
 
 # ---------------------------------------------------------------- pinlib/cli/commands/
 NO_FOLDER_FOR_NEW_PART = "no folder to write the new part into"
