@@ -1190,7 +1190,8 @@ def _(env):
                       'length = "1 cm", geometry = "g" }, { from = "U8", to = "U7", '
                       'length = "1 cm", geometry = "g" }] }\nlines.sclk')
     bus = bus.replace('{ ref = "U7", part = "nor-flash-spi" },',
-                      '{ ref = "U7", part = "nor-flash-spi" },\n  { ref = "U8", part = "dac-spi" },')
+                      '{ ref = "U7", part = "nor-flash-spi" },\n'
+                      '  { ref = "U8", part = "dac-spi" },')
     return _fails(lambda e: e.design(bus), env)
 
 
