@@ -9,8 +9,9 @@ from collections.abc import Sequence
 from dataclasses import dataclass, field
 
 from pinlib.core.quantity import format_si
-from pinlib.engines.pushline.drive import DriveCase, drive_case
+from pinlib.engines.pushline.drive import DriveCase, drive_case, route_case
 from pinlib.engines.pushline.pins import Endpoint
+from pinlib.engines.pushline.routes import RouteNet
 from pinlib.model.design import Line
 from pinlib.model.result import LineResult
 
@@ -48,6 +49,8 @@ class LineAnalysis:
         designator. [1]
     result : LineResult
         Figures and checks. [1]
+    net : RouteNet or None
+        A routed line's tree (each pin at its own point); None for the simple form. [1]
     """
 
     signal: str
@@ -65,6 +68,7 @@ class LineAnalysis:
     edge_alone: float = 0.0
     models: dict = field(default_factory=dict)
     result: LineResult = field(default_factory=LineResult)
+    net: RouteNet | None = None
 
     @property
     def trace_c(self) -> float:
@@ -72,6 +76,9 @@ class LineAnalysis:
 
     @property
     def delay(self) -> float:
+        """One-way delay of the line; of a route, the longest between two points. [s]"""
+        if self.net is not None:
+            return self.net.longest_delay
         return sum(s.td for s in self.stretches)
 
     @property
@@ -95,9 +102,7 @@ class LineAnalysis:
             return kept
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")  # the engine already noted its warnings
-            kept = drive_case(self.stretches, case.driver, self.models[ref],
-                              _others(self.loads, case.driver), 0.0,
-                              self.line.extra_capacitance, long=self.long)
+            kept = _case(self, case.driver, 0.0)
         self.unterminated = {**(self.unterminated or {}), ref: kept}
         return kept
 
@@ -106,13 +111,19 @@ def _others(pins: Sequence[Endpoint], driver: Endpoint) -> list[Endpoint]:
     return [p for p in pins if p.device is not driver.device]
 
 
+def _case(a: LineAnalysis, d: Endpoint, rs: float, rp=None, vp=None) -> DriveCase:
+    """One driver's case: at its own point of a route, else with every pin at the far end."""
+    solve = drive_case if a.net is None else (
+        lambda *args, **kw: route_case(a.net, *args, **kw))
+    return solve(a.stretches, d, a.models[d.ref], _others(a.loads, d), rs,
+                 a.line.extra_capacitance, long=a.long, r_pullup=rp, v_pullup=vp)
+
+
 def _cases(a: LineAnalysis, rs: float, pullup) -> dict:
     out = {}
     for d in a.drivers:
         rp, vp = pullup.get(d.ref, (None, None))
-        out[d.ref] = drive_case(a.stretches, d, a.models[d.ref], _others(a.loads, d), rs,
-                                a.line.extra_capacitance, long=a.long, r_pullup=rp,
-                                v_pullup=vp)
+        out[d.ref] = _case(a, d, rs, rp, vp)
     return out
 
 
@@ -121,9 +132,12 @@ def _fmt(x, unit):
 
 
 def _figures_of(cases: dict) -> dict:
+    """The worst edge figures over every driver (and, on a route, every pin's point)."""
+    rises = [w for c in cases.values() for w in c.waves("rise")]
+    falls = [w for c in cases.values() for w in c.waves("fall")]
     return {
-        "edge_rise_time": max(c.rise.t_edge for c in cases.values()),
-        "edge_fall_time": max(c.fall.t_edge for c in cases.values()),
-        "overshoot": max(c.rise.overshoot for c in cases.values()),
-        "undershoot": max(c.fall.undershoot for c in cases.values()),
+        "edge_rise_time": max(w.t_edge for w in rises),
+        "edge_fall_time": max(w.t_edge for w in falls),
+        "overshoot": max(w.overshoot for w in rises),
+        "undershoot": max(w.undershoot for w in falls),
     }

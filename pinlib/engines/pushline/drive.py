@@ -9,6 +9,7 @@ from dataclasses import dataclass
 
 from pinlib.core.errors import PinlibError
 from pinlib.engines.pushline.pins import Endpoint, Flight
+from pinlib.engines.pushline.routes import RouteNet, node_caps, tree_edges
 from pinlib.engines.pushline.rules import _REF_LEVEL
 from pinlib.engines.pushline.sections import Stretch, needs_distributed
 from pinlib.engines.pushline.waves import EdgeWave, simulate_edge
@@ -42,6 +43,13 @@ class DriveCase:
         swing into its datasheet ``test_load`` (the reference of its output timing). [s]
     v_low, v_high : float
         Static levels of the line. [V]
+    net : RouteNet or None
+        A routed line's tree; None for the simple form (every pin at the far end). [1]
+    points : dict or None
+        On a routed line, the :class:`PointWaves` of each edge; ``rise`` and ``fall``
+        are then the edges at the device farthest (in delay) from the driver. [1]
+    load_refs : tuple of str
+        On a routed line, the devices whose pins load the driver. [1]
     """
 
     driver: Endpoint
@@ -54,9 +62,24 @@ class DriveCase:
     ref: dict
     v_low: float
     v_high: float
+    net: RouteNet | None = None
+    points: dict | None = None
+    load_refs: tuple = ()
 
     def wave(self, edge: str) -> EdgeWave:
         return self.rise if edge == "rise" else self.fall
+
+    def wave_at(self, ref: str, edge: str) -> EdgeWave:
+        """The edge at a device's own point (a routed line), else at the far end."""
+        if self.points is None:
+            return self.wave(edge)
+        return self.points[edge].at(self.net.node(ref))
+
+    def waves(self, edge: str) -> list[EdgeWave]:
+        """The edge at every other pin's point on a routed line; else at the far end."""
+        if self.points is None:
+            return [self.wave(edge)]
+        return [self.wave_at(r, edge) for r in self.load_refs] or [self.wave(edge)]
 
     def flight(self, receiver: Endpoint, edge: str) -> Flight:
         """Earliest and latest flight of one edge to a receiver's thresholds. [s]
@@ -65,7 +88,7 @@ class DriveCase:
         without thresholds is taken to switch at half its supply.
         """
         v_il, v_ih = _thresholds(receiver)
-        w = self.wave(edge)
+        w = self.wave_at(receiver.ref, edge)
         first, last = (v_il, v_ih) if edge == "rise" else (v_ih, v_il)
         ref = self.ref[edge]
         return Flight(w.crossing(first) - ref, w.crossing(last) - ref)
@@ -195,8 +218,61 @@ def drive_case(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver
                          distributed=distributed, edge="rise")
     fall = simulate_edge(stretches, model.r_fall + rs, model.t_ramp_fall, c_far, vdd, 0.0,
                          distributed=distributed, edge="fall")
-    ref = {"rise": float(rc.ramp_rc_crossing(_REF_LEVEL, model.t_ramp_rise,
-                                             model.r_rise * c_test)),
-           "fall": float(rc.ramp_rc_crossing(_REF_LEVEL, model.t_ramp_fall,
-                                             model.r_fall * c_test))}
+    ref = _source_ref(driver.device, model, c_test)
     return DriveCase(driver, model, rs, c_far, distributed, rise, fall, ref, 0.0, vdd)
+
+
+def _source_ref(device: Device, model: drv.Driver, c_test: float) -> dict:
+    """When the driver's pin would cross 50 % of its swing into its ``test_load``. [s]"""
+    return {"rise": float(rc.ramp_rc_crossing(_REF_LEVEL, model.t_ramp_rise,
+                                              model.r_rise * c_test)),
+            "fall": float(rc.ramp_rc_crossing(_REF_LEVEL, model.t_ramp_fall,
+                                              model.r_fall * c_test))}
+
+
+def route_case(net: RouteNet, stretches: Sequence[Stretch], driver: Endpoint,
+               model: drv.Driver, loads: Sequence[Endpoint], rs: float, extra_c: float, *,
+               long: bool, r_pullup: float | None = None,
+               v_pullup: float | None = None) -> DriveCase:
+    """Both edges of one driver at its own point of a routed line, at every point.
+
+    Parameters are those of :func:`drive_case`, with ``net`` the route's tree: each
+    load's capacitance sits at its own point, the extra capacitance at the route's far
+    point.  ``rise`` and ``fall`` of the case are the edges at the load farthest in delay
+    from the driver; :meth:`DriveCase.wave_at` gives any device's.
+    """
+    caps = node_caps(net, {p.ref: p.c_in for p in loads}, extra_c)
+    c_far = sum(p.c_in for p in loads) + extra_c
+    src = net.node(driver.ref)
+    c_test = _test_load(driver.device)
+    if driver.pin.drive == "open-drain":
+        rp, v_hi = float(r_pullup), float(v_pullup)
+        leak = sum(float(p.pin.leakage.at()) for p in list(loads) + [driver]
+                   if p.pin.leakage is not None)
+        v_hi = max(v_hi - leak * rp, 0.0)
+        r_sink = model.r_fall + rs
+        v_lo = v_hi * r_sink / (r_sink + rp)
+        r_th = r_sink * rp / (r_sink + rp)
+        distributed = needs_distributed(stretches, r_th, c_far, long)
+        points = {"fall": tree_edges(net, src, r_th, model.t_ramp_fall, caps, v_hi, v_lo,
+                                     distributed=distributed, edge="fall"),
+                  # The pull-up (>> Z0) charges the line as one capacitance.
+                  "rise": tree_edges(net, src, rp, 0.0, caps, v_lo, v_hi, distributed=False,
+                                     edge="rise")}
+        ref = {"rise": float(rc.ramp_rc_crossing(_REF_LEVEL, 0.0, rp * c_test)),
+               "fall": float(rc.ramp_rc_crossing(_REF_LEVEL, model.t_ramp_fall,
+                                                 r_th * c_test))}
+    else:
+        v_lo, v_hi = 0.0, driver.vdd
+        distributed = needs_distributed(stretches, min(model.r_rise, model.r_fall) + rs,
+                                        c_far, long)
+        points = {"rise": tree_edges(net, src, model.r_rise + rs, model.t_ramp_rise, caps,
+                                     0.0, v_hi, distributed=distributed, edge="rise"),
+                  "fall": tree_edges(net, src, model.r_fall + rs, model.t_ramp_fall, caps,
+                                     v_hi, 0.0, distributed=distributed, edge="fall")}
+        ref = _source_ref(driver.device, model, c_test)
+    delays = net.delays_from(src)
+    far = max((net.node(p.ref) for p in loads), key=delays.__getitem__, default=src)
+    return DriveCase(driver, model, rs, c_far, distributed, points["rise"].at(far),
+                     points["fall"].at(far), ref, v_lo, v_hi, net, points,
+                     tuple(p.ref for p in loads))

@@ -11,6 +11,7 @@ from pinlib.engines import memo
 from pinlib.engines.pushline.analysis import LineAnalysis, _figures_of, _fmt, _others
 from pinlib.engines.pushline.drive import _driver_model, _open_drain_model, _pullups
 from pinlib.engines.pushline.pins import Endpoint
+from pinlib.engines.pushline.routes import route_net
 from pinlib.engines.pushline.rules import (
     _FIGURE_UNITS,
     LINE_DELAY_RULE,
@@ -124,13 +125,15 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
     series resistor and the final cases, checks, figures."""
     notes = res.notes
     stretches = stretches_of(line.sections)
+    net = route_net(line.route, stretches) if line.route else None
     a = LineAnalysis(signal, line, stretches, list(drivers), list(loads), list(receivers),
-                     result=res)
+                     result=res, net=net)
     if not a.drivers:
         raise DesignError(M.NO_DRIVER_ON_LINE, field=f"lines.{signal}",
                           hint="a push-pull or open-drain pin must sit on the line")
     if any(not s.td > 0 for s in stretches) and stretches:
-        notes.append("a section without a delay counts as a lumped capacitance at the far end")
+        notes.append("a section without a delay counts as a lumped capacitance "
+                     + ("half at each of its two points" if net else "at the far end"))
     pullup = _driver_models(a, res)
     if not a.drivers:
         for name, unit in _FIGURE_UNITS:
@@ -179,7 +182,8 @@ def _electrical_length(a: LineAnalysis, notes: list) -> None:
         if d.pin.drive != "open-drain":
             alone.append(float(drv.edge_time(m.r_rise, m.t_ramp_rise, c_pins)))
     a.edge_alone = min(alone)
-    a.long, a.ratio = line_model(a.stretches, a.edge_alone)
+    a.long, a.ratio = line_model(a.stretches, a.edge_alone,
+                                 td=a.delay if a.net is not None else None)
     notes.append(f"one-way delay {_fmt(a.delay, 's')} is {a.ratio:.2f} of the driver's "
                  f"{_fmt(a.edge_alone, 's')} edge into the pins alone: "
                  f"{'electrically long' if a.long else 'electrically short'} "

@@ -31,7 +31,9 @@ def _si_checks(a: LineAnalysis, cases: dict, clock: float | None, clock_line: bo
         for ref, c in cases.items():
             if ref != rx.ref:
                 checks += _level_checks(rx, drivers[ref], c, v_il, v_ih, warn)
-    if clock:
+    if clock and a.net is not None:
+        checks += [_edge_check(cases, clock, warn, rx) for rx in a.receivers]
+    elif clock:
         checks.append(_edge_check(cases, clock, warn))
     return checks
 
@@ -44,12 +46,14 @@ def _swing_checks(p: Endpoint, cases: dict, warn: float) -> list[Check]:
     own = [c for ref, c in cases.items() if ref != p.ref]
     if not own:
         return []
-    peak = max(c.rise.v_to + c.rise.overshoot for c in own)
+    rises = [c.wave_at(p.ref, "rise") for c in own]
+    falls = [c.wave_at(p.ref, "fall") for c in own]
+    peak = max(w.v_to + w.overshoot for w in rises)
     allowed = abs_max - p.vdd
     above = peak - p.vdd
     if abs(above) <= 1e-12 * max(abs(peak), 1.0):
         above = 0.0  # a settled edge at the supply: the difference is float rounding
-    dip = max(c.fall.undershoot - c.fall.v_to for c in own)
+    dip = max(w.undershoot - w.v_to for w in falls)
     low_allowed = min(allowed, UNDERSHOOT_DEFAULT)
     return [
         check_max(
@@ -73,7 +77,7 @@ def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
         if ref == rx.ref:
             continue
         for edge in ("rise", "fall"):
-            w = c.wave(edge)
+            w = c.wave_at(rx.ref, edge)
             got = wf.recrossings(w.t, w.v, v_il, v_ih, edge=edge)
             prev = counts.get(edge, (0, 0))
             counts[edge] = (max(prev[0], int(got.entry)), max(prev[1], int(got.opposite)))
@@ -130,12 +134,19 @@ def _level_checks(rx: Endpoint, d: Endpoint, c, v_il: float, v_ih: float,
     ]
 
 
-def _edge_check(cases: dict, clock: float, warn: float) -> Check:
-    """The slowest 10-90 % edge against a fraction of the clock period (a rule of thumb)."""
-    edge = max(max(c.rise.t_edge, c.fall.t_edge) for c in cases.values())
+def _edge_check(cases: dict, clock: float, warn: float, rx: Endpoint | None = None) -> Check:
+    """The slowest 10-90 % edge against a fraction of the clock period (a rule of thumb):
+    at the far end, or on a route at one receiver's point (from every other driver)."""
+    if rx is None:
+        edge = max(max(c.rise.t_edge, c.fall.t_edge) for c in cases.values())
+        where, subject = "the far end", None
+    else:
+        edge = max((max(c.wave_at(rx.ref, "rise").t_edge, c.wave_at(rx.ref, "fall").t_edge)
+                    for ref, c in cases.items() if ref != rx.ref), default=0.0)
+        where, subject = rx.label, rx.ref
     limit = EDGE_FRACTION / clock
     return rule_of_thumb(check_max(
         "edge-time", edge, limit, "s", EDGE_RULE,
-        f"slowest 10-90 % edge {_fmt(edge, 's')} at the far end against "
+        f"slowest 10-90 % edge {_fmt(edge, 's')} at {where} against "
         f"{EDGE_FRACTION:.0%} of the {_fmt(1.0 / clock, 's')} period",
-        warn_margin=warn, details={"fraction": EDGE_FRACTION}))
+        warn_margin=warn, subject=subject, details={"fraction": EDGE_FRACTION}))
