@@ -175,9 +175,12 @@ def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
 def _electrical_length(a: LineAnalysis, notes: list) -> None:
     """Electrical length against the fastest edge into the pins alone."""
     alone = []
+    # every pin's capacitance once; each driver's load is all of them but its own
+    c_in = {id(p.device): p.c_in for p in a.loads}
+    c_all = sum(c_in.values())
     for d in a.drivers:
         m = a.models[d.ref]
-        c_pins = sum(p.c_in for p in _others(a.loads, d)) + a.line.extra_capacitance
+        c_pins = c_all - c_in.get(id(d.device), 0.0) + a.line.extra_capacitance
         alone.append(float(drv.edge_time(m.r_fall, m.t_ramp_fall, c_pins)))
         if d.pin.drive != "open-drain":
             alone.append(float(drv.edge_time(m.r_rise, m.t_ramp_rise, c_pins)))

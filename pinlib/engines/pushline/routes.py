@@ -141,6 +141,14 @@ class PointWaves:
         self._unit, self._settled = unit, settled
         self._made: dict[int, EdgeWave] = {}
 
+    def extremes(self) -> tuple[np.ndarray, np.ndarray]:
+        """At every node at once: the peak (the high level plus the overshoot) and the dip
+        (the undershoot below the low level, minus the low level), as
+        :class:`EdgeWave` computes them one node at a time. [V]"""
+        v = self.v_from + (self.v_to - self.v_from) * self._unit
+        hi, lo = max(self.v_from, self.v_to), min(self.v_from, self.v_to)
+        return (self.v_to + wf.overshoot(v, hi), wf.undershoot(v, lo) - self.v_to)
+
     def at(self, node: int) -> EdgeWave:
         """The edge at one node. [1]"""
         got = self._made.get(node)
