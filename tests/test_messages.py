@@ -1516,6 +1516,38 @@ def _(env):
         GRID, 1.0, 0.0, 50.0, SECTION, 0.0, c_mid=1e-12, mid_junction=5), env)
 
 
+TREE = [(0, 1, 50.0, 1e-9), (1, 2, 50.0, 1e-9)]
+
+
+@case("TREE_SECTION_FORM")
+def _(env):
+    return _fails(lambda e: _waveform().tree_response(
+        GRID, 1.0, 0.0, 50.0, [(0, 1, 50.0)], [0.0, 0.0]), env)
+
+
+@case("NODE_INDEX_OUT_OF_RANGE")
+def _(env):
+    return _fails(lambda e: _waveform().tree_response(
+        GRID, 1.0, 0.0, 50.0, TREE, [0.0] * 3, source=3), env)
+
+
+@case("NODE_CAPS_FORM")
+def _(env):
+    return _fails(lambda e: _waveform().tree_response(GRID, 1.0, 0.0, 50.0, TREE, 1e-12), env)
+
+
+@case("TREE_LOOP")
+def _(env):
+    return _fails(lambda e: _waveform().tree_response(
+        GRID, 1.0, 0.0, 50.0, [*TREE, (2, 0, 50.0, 1e-9)], [0.0] * 3), env)
+
+
+@case("TREE_NOT_CONNECTED")
+def _(env):
+    return _fails(lambda e: _waveform().tree_response(
+        GRID, 1.0, 0.0, 50.0, TREE, [0.0] * 4), env)
+
+
 # ---------------------------------------------------------------- engines: physics.lines
 @case("PARAMETER_NOT_A_NUMBER", M.PARAMETER_NOT_A_NUMBER.format(name="w"))
 def _(env):
