@@ -55,7 +55,12 @@ from pinlib.physics.waveform.metrics import (  # noqa: F401
     threshold_delay,
     undershoot,
 )
-from pinlib.physics.waveform.tree import TreeWaveform, tree_response  # noqa: F401
+from pinlib.physics.waveform.tree import (  # noqa: F401
+    STEPS_PER_EDGE,
+    TreeWaveform,
+    choose_step,
+    tree_response,
+)
 
 __all__ = [
     "Waveform",
@@ -69,4 +74,6 @@ __all__ = [
     "distributed_response",
     "TreeWaveform",
     "tree_response",
+    "choose_step",
+    "STEPS_PER_EDGE",
 ]

@@ -82,11 +82,14 @@ def _phi(x: np.ndarray) -> np.ndarray:
                     -np.expm1(-x_safe) / x_safe)
 
 
-def _check_line(k: int, z0, td, dt: float, stacklevel: int) -> tuple[np.ndarray, int]:
-    """Section ``k``'s impedance (batchable) and delay in whole steps (0: no line).
+def _check_line(k: int, z0, td, dt: float, stacklevel: int) -> tuple[np.ndarray, float]:
+    """Section ``k``'s impedance (batchable) and delay in steps (0: no line).
 
-    Warns (:class:`ValidityWarning`, at ``stacklevel`` from here) when rounding changes
-    the delay by more than :data:`_DELAY_ROUNDING_WARN`.
+    A delay of a whole number of steps (to 1e-9) is that number; one of at least a
+    step is kept as a fraction of steps (the march interpolates between the two
+    samples around it); one of half a step to a step is rounded to one step, with a
+    :class:`ValidityWarning` (at ``stacklevel`` from here) when that changes it by more
+    than :data:`_DELAY_ROUNDING_WARN`; a shorter one is refused.
     """
     z0 = np.asarray(z0, dtype=float)
     if not np.all(np.isfinite(z0) & (z0 > 0.0)):
@@ -96,16 +99,21 @@ def _check_line(k: int, z0, td, dt: float, stacklevel: int) -> tuple[np.ndarray,
         raise InputError(M.SECTION_DELAY_FORM,
                          field=f"sections[{k}].td", value=td, expected="td >= 0 [s]")
     td = float(td)
-    steps = int(round(td / dt))
+    exact = td / dt
+    steps = int(round(exact))
     if td > 0.0 and steps == 0:
         raise InputError(M.TIME_STEP_TOO_COARSE,
                          field=f"sections[{k}].td", value=td,
                          expected=f"td >= dt/2 = {dt / 2:.3g} s (or a finer grid)")
-    if td > 0.0 and abs(steps * dt - td) > _DELAY_ROUNDING_WARN * td:
+    if abs(exact - steps) <= 1e-9 * exact or steps == 0:
+        return z0, float(steps)
+    if exact >= 1.0:
+        return z0, exact
+    if abs(steps * dt - td) > _DELAY_ROUNDING_WARN * td:
         warnings.warn(M.DELAY_ROUNDED.format(k=k, td=f"{td:.4g}", steps=steps,
                                              dt=f"{dt:.4g}", rounded=f"{steps * dt:.4g}"),
                       ValidityWarning, stacklevel=stacklevel + 1)
-    return z0, steps
+    return z0, float(steps)
 
 
 def _non_negative(name: str, a: np.ndarray, unit: str) -> None:
@@ -123,7 +131,8 @@ class Network(NamedTuple):
 
     port_node: np.ndarray     # (P,) node of each port
     port_partner: np.ndarray  # (P,) the port at the line's other end
-    port_delay: np.ndarray    # (P,) the line's delay in steps
+    port_delay: np.ndarray    # (P,) the line's delay in whole steps (rounded down)
+    port_frac: np.ndarray     # (P,) and the fraction of a step beyond them
     port_g: np.ndarray        # (P, B) 1 / Z of the port's line
     incidence: np.ndarray     # (nodes, P): 1 where the port is at the node
     source: int               # the node the source attaches to
@@ -138,14 +147,16 @@ def network(n_nodes: int, lines, caps: np.ndarray, r_source: np.ndarray, source:
             dt: float) -> Network:
     """The companion network.
 
-    ``lines`` holds ``(node_a, node_b, z0 (B,), delay_steps)`` for each line with a
-    delay; ``caps`` is ``(n_nodes, B)``; ``r_source`` ``(B,)``.
+    ``lines`` holds ``(node_a, node_b, z0 (B,), delay in steps)`` for each line with a
+    delay of at least one step; ``caps`` is ``(n_nodes, B)``; ``r_source`` ``(B,)``.
     """
     n_b = r_source.size
     ends = [(a, b) for a, b, _, _ in lines]
     port_node = np.array([n for pair in ends for n in pair], dtype=int)
     port_partner = np.arange(port_node.size) ^ 1
-    port_delay = np.repeat(np.array([d for *_, d in lines], dtype=int), 2)
+    delays = np.repeat(np.array([d for *_, d in lines], dtype=float), 2)
+    port_delay = np.floor(delays).astype(int)
+    port_frac = delays - port_delay
     port_g = np.repeat(np.array([1.0 / z for _, _, z, _ in lines]).reshape(-1, n_b), 2,
                        axis=0)
     incidence = np.zeros((n_nodes, port_node.size))
@@ -166,7 +177,7 @@ def network(n_nodes: int, lines, caps: np.ndarray, r_source: np.ndarray, source:
     h = np.where(has_cap, g_node * dt / np.where(has_cap, caps, 1.0), np.inf)
     a = np.exp(-h)
     p = _phi(h)
-    return Network(port_node, port_partner, port_delay, port_g, incidence, source,
+    return Network(port_node, port_partner, port_delay, port_frac, port_g, incidence, source,
                    g_source, forced, a, (1.0 - p) / g_node, (p - a) / g_node)
 
 
@@ -198,7 +209,8 @@ def march(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
     two_g = 2.0 * net.port_g[:, None, :]
     forced = net.forced[None, :]
     # waves launched into each port's line, kept for one longest delay plus one run
-    ring = (int(net.port_delay.max()) if n_ports else 0) + block
+    ring = (int(net.port_delay.max()) + 1 if n_ports else 0) + block
+    frac = net.port_frac[:, None, None] if np.any(net.port_frac > 0.0) else None
     launched = np.zeros((n_ports, ring, n_b))
     steps = np.arange(block)
     back = (net.port_delay[:, None] - steps[None, :])  # (P, block): q - delay + k = q - back
@@ -215,6 +227,8 @@ def march(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
         m = min(block, n_t - n)
         here = slice(n, n + m)
         inc = launched[partner, (n - back[:, :m]) % ring]          # (P, m, B)
+        if frac is not None:  # a delay between two samples: linear interpolation
+            inc += frac * (launched[partner, (n - 1 - back[:, :m]) % ring] - inc)
         if n_ports:
             cur = np.matmul(net.incidence, (two_g * inc).reshape(n_ports, -1))
             cur = cur.reshape(n_nodes, m, n_b)
