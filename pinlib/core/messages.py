@@ -270,6 +270,12 @@ Z0_NOT_POSITIVE = "characteristic impedance must be positive"
 SECTION_DELAY_FORM = "section delay must be one number >= 0"
 TIME_STEP_TOO_COARSE = "time step too coarse for a line section"
 MID_JUNCTION_OUT_OF_RANGE = "junction for c_mid out of range"
+# pinlib/physics/waveform/tree.py
+TREE_SECTION_FORM = "a section of a tree must be (a, b, z0, td): two nodes, impedance, delay"
+NODE_INDEX_OUT_OF_RANGE = "not a node of the tree"
+NODE_CAPS_FORM = "node capacitances must be a sequence with one value per node"
+TREE_LOOP = "this section closes a loop: the sections must form a tree"
+TREE_NOT_CONNECTED = "the sections do not join every node"
 # pinlib/physics/lines.py
 PARAMETER_NOT_A_NUMBER = "parameter '{name}' is not a number"
 PARAMETER_OUT_OF_RANGE = "parameter '{name}' is out of range"
