@@ -29,7 +29,6 @@ from pinlib.engines.pushline.rules import (
     _STEPS_PER_TAU,
 )
 from pinlib.engines.pushline.sections import Stretch
-from pinlib.engines.pushline.treemarch import tree_response  # TEMPORARY: see treemarch
 from pinlib.engines.pushline.waves import EdgeWave, _grid
 from pinlib.physics import waveform as wf
 
@@ -229,9 +228,11 @@ def _unit_tree(net: RouteNet, source: int, r_source: float, t_ramp: float,
         if distributed:
             limits.append(min(delays) / _STEPS_PER_DELAY)
         dt = max(min(limits), t_end / _MAX_STEPS)
+        if distributed:  # the shortest delay in whole steps; the others interpolated
+            dt = min(delays) / math.ceil(min(delays) / dt)
         t = _grid(t_end, dt)
         if distributed:
-            unit = tree_response(t, 1.0, t_ramp, r_source, sections, list(caps),
+            unit = wf.tree_response(t, 1.0, t_ramp, r_source, sections, list(caps),
                                     source=source, edge="rise").v
         else:
             one = wf.lumped_response(t, 1.0, t_ramp, r_source, c_total).v
