@@ -8,6 +8,8 @@ import warnings
 from collections.abc import Sequence
 from dataclasses import dataclass, field
 
+import numpy as np
+
 from pinlib.core.quantity import format_si
 from pinlib.engines.pushline.drive import DriveCase, drive_case, route_case
 from pinlib.engines.pushline.pins import Endpoint
@@ -132,12 +134,21 @@ def _fmt(x, unit):
 
 
 def _figures_of(cases: dict) -> dict:
-    """The worst edge figures over every driver (and, on a route, every pin's point)."""
-    rises = [w for c in cases.values() for w in c.waves("rise")]
-    falls = [w for c in cases.values() for w in c.waves("fall")]
-    return {
-        "edge_rise_time": max(w.t_edge for w in rises),
-        "edge_fall_time": max(w.t_edge for w in falls),
-        "overshoot": max(w.overshoot for w in rises),
-        "undershoot": max(w.undershoot for w in falls),
-    }
+    """The worst edge figures over every driver (and, on a route, every pin's point, all
+    nodes of one solve at once)."""
+    rise_t, fall_t, over, under = [], [], [], []
+    for c in cases.values():
+        if c.points is None:
+            rise_t.append(c.rise.t_edge)
+            fall_t.append(c.fall.t_edge)
+            over.append(c.rise.overshoot)
+            under.append(c.fall.undershoot)
+            continue
+        nodes = [c.net.node(r) for r in c.load_refs] or [c.net.node(c.driver.ref)]
+        rise, fall = c.points["rise"], c.points["fall"]
+        rise_t.append(float(np.max(rise.edge_times()[nodes])))
+        fall_t.append(float(np.max(fall.edge_times()[nodes])))
+        over.append(float(np.max(rise.extremes()[0][nodes])) - rise.v_to)
+        under.append(float(np.max(fall.extremes()[1][nodes])) + fall.v_to)
+    return {"edge_rise_time": max(rise_t), "edge_fall_time": max(fall_t),
+            "overshoot": max(over), "undershoot": max(under)}
