@@ -272,7 +272,7 @@ def test_route_test_design_checks_and_reports(tmp_path, capsys):
     assert code in (0, 1)
     assert "U4" in out and "edge" in out.lower()
     html = tmp_path / "r.html"
-    assert main(["report", str(ROUTE_DESIGN), "--html", str(html)]) == 0
+    assert main(["report", str(ROUTE_DESIGN), "--html", str(html)]) == code  # as check
     text = html.read_text(encoding="utf-8")
     assert "U1 ─2 cm─ T1" in text  # the route drawn as text
 

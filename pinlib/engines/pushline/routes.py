@@ -208,11 +208,13 @@ def tree_edges(net: RouteNet, source: int, r_source: float, t_ramp: float,
 
     Notes
     -----
-    The time grid follows :func:`pinlib.engines.pushline.simulate_edge`: the ramp, 12
-    time constants of ``r_source`` into the whole capacitance and (distributed) 60
-    times the tree's longest one-way delay (not lengthened: :data:`_ROUTE_EXTENSIONS`;
-    ``settled`` says whether each node ended within 1 % of the swing); the step at most 1/50 of the shortest stretch delay, of the ramp and
-    of the time constant.  The tree is solved by
+    The record runs for the ramp, 12 time constants of ``r_source`` into the whole
+    capacitance and (distributed) 60 times the tree's longest one-way delay, as
+    :func:`pinlib.engines.pushline.simulate_edge`'s first record, and is not lengthened
+    (:data:`_ROUTE_EXTENSIONS`; each node says whether it ended within 1 % of the
+    swing).  The step is the tree solver's (:func:`pinlib.physics.waveform.choose_step`:
+    20 per shortest ramp or delay), at least 4,000 over the record, dividing the
+    shortest delay.  The tree is solved by
     :func:`pinlib.physics.waveform.tree_response`; the circuit is linear, so the edge is
     ``v_from + (v_to - v_from) u(t)`` with ``u`` its unit response.
     """
