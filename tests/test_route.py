@@ -284,3 +284,20 @@ def test_json_names_each_receiver(capsys):
     sclk = next(x for x in bus["lines"] if x["signal"] == "sclk")
     subjects = {c.get("subject") for c in sclk["checks"] if c["id"] == "edge-time"}
     assert subjects == {"U2", "U3", "U4"}
+
+
+def test_waveform_chart_data_holds_every_receiver_of_a_route():
+    from pinlib.present import plotdata
+
+    design = load_design(ROUTE_DESIGN)
+    bus = design.buses[0]
+    result = check_design(design).buses[0]
+    w = plotdata.waveform_data(bus, design, "copi", analysis=result)
+    assert set(w.traces) == {f"{e} at {r}" for e in ("rise", "fall") for r in ("U2", "U3", "U4")}
+    la = result.workings.lines["copi"]
+    # the engine's own overshoot at each point (no engine runs again)
+    for r in ("U2", "U3", "U4"):
+        assert w.overshoot[f"rise at {r}"] == la.cases["U1"].wave_at(r, "rise").overshoot
+    one = plotdata.waveform_data(bus, design, "copi", analysis=result, receiver="U3")
+    assert set(one.traces) == {"rise, no series R", "fall, no series R"}
+    assert one.receivers == [next(x.label for x in la.receivers if x.ref == "U3")]
