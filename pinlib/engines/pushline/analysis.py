@@ -133,9 +133,11 @@ def _fmt(x, unit):
     return format_si(x, unit)
 
 
-def _figures_of(cases: dict) -> dict:
-    """The worst edge figures over every driver (and, on a route, every pin's point, all
-    nodes of one solve at once)."""
+def _figures_of(cases: dict, receivers=()) -> dict:
+    """The worst edge figures over every driver; on a route the edge times at the points
+    of the receivers (``receivers``: on CIPO the controller only, so the cost stays linear
+    in the peripherals) and the overshoot and undershoot at every pin's point, all nodes
+    of one solve at once."""
     rise_t, fall_t, over, under = [], [], [], []
     for c in cases.values():
         if c.points is None:
@@ -144,11 +146,12 @@ def _figures_of(cases: dict) -> dict:
             over.append(c.rise.overshoot)
             under.append(c.fall.undershoot)
             continue
-        nodes = [c.net.node(r) for r in c.load_refs] or [c.net.node(c.driver.ref)]
+        others = [c.net.node(r) for r in c.load_refs] or [c.net.node(c.driver.ref)]
+        sensed = [c.net.node(r.ref) for r in receivers if r.ref != c.driver.ref] or others
         rise, fall = c.points["rise"], c.points["fall"]
-        rise_t.append(float(np.max(rise.edge_times()[nodes])))
-        fall_t.append(float(np.max(fall.edge_times()[nodes])))
-        over.append(float(np.max(rise.extremes()[0][nodes])) - rise.v_to)
-        under.append(float(np.max(fall.extremes()[1][nodes])) + fall.v_to)
+        rise_t.append(float(np.max(rise.edge_times(sensed))))
+        fall_t.append(float(np.max(fall.edge_times(sensed))))
+        over.append(float(np.max(rise.extremes()[0][others])) - rise.v_to)
+        under.append(float(np.max(fall.extremes()[1][others])) + fall.v_to)
     return {"edge_rise_time": max(rise_t), "edge_fall_time": max(fall_t),
             "overshoot": max(over), "undershoot": max(under)}

@@ -216,7 +216,7 @@ def _add_checks(a: LineAnalysis, res: LineResult, clock, clock_line, warn_margin
 
 def _add_figures(a: LineAnalysis, res: LineResult) -> None:
     """The line's figures, in the order of ``_FIGURE_UNITS``."""
-    figs = _figures_of(a.cases)
+    figs = _figures_of(a.cases, a.receivers)
     res.figure("load_capacitance", a.trace_c + max(c.c_far for c in a.cases.values()), "F")
     res.figure("trace_delay", a.delay, "s")
     res.figure("z0", a.z0, "Ω")

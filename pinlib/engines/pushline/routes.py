@@ -145,23 +145,25 @@ class PointWaves:
         self.edge, self.t, self.v_from, self.v_to = edge, t, float(v_from), float(v_to)
         self._unit, self._settled = unit, settled
         self._made: dict[int, EdgeWave] = {}
-        self._edges: np.ndarray | None = None
+        self._extremes: tuple | None = None
 
     def extremes(self) -> tuple[np.ndarray, np.ndarray]:
         """At every node at once: the peak (the high level plus the overshoot) and the dip
         (the undershoot below the low level, minus the low level), as
-        :class:`EdgeWave` computes them one node at a time. [V]"""
-        v = self.v_from + (self.v_to - self.v_from) * self._unit
-        hi, lo = max(self.v_from, self.v_to), min(self.v_from, self.v_to)
-        return (self.v_to + wf.overshoot(v, hi), wf.undershoot(v, lo) - self.v_to)
-
-    def edge_times(self) -> np.ndarray:
-        """The 10-90 % edge at every node at once (NaN where it is not reached). [s]"""
-        if self._edges is None:
+        :class:`EdgeWave` computes them one node at a time (computed once). [V]"""
+        if self._extremes is None:
             v = self.v_from + (self.v_to - self.v_from) * self._unit
-            self._edges = np.asarray(wf.edge_time(self.t, v, self.v_to,
-                                                  v_initial=self.v_from), dtype=float)
-        return self._edges
+            hi, lo = max(self.v_from, self.v_to), min(self.v_from, self.v_to)
+            self._extremes = (self.v_to + np.asarray(wf.overshoot(v, hi)),
+                              np.asarray(wf.undershoot(v, lo)) - self.v_to)
+        return self._extremes
+
+    def edge_times(self, nodes) -> np.ndarray:
+        """The 10-90 % edge at the given nodes (NaN where it is not reached). [s]"""
+        nodes = list(nodes)
+        v = self.v_from + (self.v_to - self.v_from) * self._unit[nodes]
+        return np.asarray(wf.edge_time(self.t, v, self.v_to, v_initial=self.v_from),
+                          dtype=float)
 
     def at(self, node: int) -> EdgeWave:
         """The edge at one node. [1]"""
