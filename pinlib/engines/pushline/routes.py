@@ -21,7 +21,6 @@ from pinlib.engines.pushline.rules import (
     _MAX_STEPS,
     _MIN_STEPS,
     _SETTLE_DELAYS,
-    _SETTLE_TAUS,
     _SETTLED,
     _STEPS_PER_TAU,
 )
@@ -37,6 +36,13 @@ from pinlib.physics import waveform as wf
 #: first record and says so in a note when it has not settled (the chain, whose far end
 #: settles far sooner, still lengthens its record).
 _ROUTE_EXTENSIONS = 0
+
+#: Time constants of ``r_source`` into the whole capacitance in a route's record (the
+#: chain takes 12).  One pole is within 1 % of its final value after ln(100) = 4.6 of
+#: them and past its 90 % point after 2.3 (derived from exp(-t/tau)); 6 leave room for
+#: the tree's reflections on top.  The record is what grows with the devices on a line
+#: (each pin adds to tau), so this sets how the peripherals of a CIPO route cost.
+_ROUTE_SETTLE_TAUS = 6.0
 
 
 @dataclass(frozen=True)
@@ -210,9 +216,9 @@ def tree_edges(net: RouteNet, source: int, r_source: float, t_ramp: float,
 
     Notes
     -----
-    The record runs for the ramp, 12 time constants of ``r_source`` into the whole
-    capacitance and (distributed) 60 times the tree's longest one-way delay, as
-    :func:`pinlib.engines.pushline.simulate_edge`'s first record, and is not lengthened
+    The record runs for the ramp, 6 time constants of ``r_source`` into the whole
+    capacitance (:data:`_ROUTE_SETTLE_TAUS`) and (distributed) 60 times the tree's
+    longest one-way delay, and is not lengthened
     (:data:`_ROUTE_EXTENSIONS`; each node says whether it ended within 1 % of the
     swing).  The step is the tree solver's (:func:`pinlib.physics.waveform.choose_step`:
     20 per shortest ramp or delay), at least 4,000 over the record, dividing the
@@ -235,7 +241,7 @@ def _unit_tree(net: RouteNet, source: int, r_source: float, t_ramp: float,
     delays = [s.td for _, _, s in net.sections if s.td > 0]
     distributed = distributed and bool(delays)
     longest = net.longest_delay if distributed else 0.0
-    t_end = max(t_ramp + _SETTLE_TAUS * tau + _SETTLE_DELAYS * longest, 1e-12)
+    t_end = max(t_ramp + _ROUTE_SETTLE_TAUS * tau + _SETTLE_DELAYS * longest, 1e-12)
     sections = [(a, b, s.z0 if s.td > 0 else 1.0, s.td) for a, b, s in net.sections]
     n_nodes = len(net.names)
     for _ in range(_ROUTE_EXTENSIONS + 1):
