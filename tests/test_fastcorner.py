@@ -126,3 +126,39 @@ def test_a_fast_corner_weaker_than_the_slow_one_is_a_problem(tmp_path):
     (problem,) = part_warnings(lib.parts["swapped"], lib)
     assert problem.field == "pins.sclk.fast.r_out" and "swapped" in problem.message
     assert problem.line == 13  # the line of the fast corner (HEAD is 11 lines, r_out 12)
+
+
+def routed_line_of(lib, part):
+    """The same part on a routed line: U1 -10 cm- U2 -10 cm- U3 (a daisy chain)."""
+    ctrl = Device("U1", part, lib.parts[part], "controller", None)
+    rxs = [Device(ref, "pp-periph", lib.parts["pp-periph"], "peripheral", None)
+           for ref in ("U2", "U3")]
+    d = Endpoint(ctrl, "sclk", ctrl.part.pins["sclk"], VDD)
+    rs = [Endpoint(x, "sclk", x.part.pins["sclk"], VDD) for x in rxs]
+    sec = Section(0.10, None, 1e-10, 5e-9)
+    line = Line("sclk", (sec, sec), "none", 0.0, route=(("U1", "U2"), ("U2", "U3")))
+    return analyse_line("sclk", line, [d], [d, *rs], rs, clock=20e6, clock_line=True)
+
+
+def _at(analysis, check_id, ref):
+    """The check ``check_id`` of a line result whose subject is ``ref``."""
+    (got,) = [c for c in analysis.result.checks if c.id == check_id and c.subject == ref]
+    return got
+
+
+def test_fast_corner_on_a_routed_line_sets_overshoot_at_every_receiver(lib):
+    slow, fast, both = (routed_line_of(lib, p) for p in ("slow-only", "fast-only", "both"))
+    for ref in ("U2", "U3"):
+        # derived as above: the fast corner's edges set overshoot at each point, the
+        # slow corner's the edge times (same solves, so to rounding)
+        got = [_at(a, "overshoot", ref) for a in (slow, fast, both)]
+        assert got[2].value == pytest.approx(got[1].value, rel=1e-12)
+        assert got[2].value > got[0].value
+        assert "(fast corner)" in got[2].message
+        edge = [_at(a, "edge-time", ref) for a in (slow, both)]
+        assert edge[1].value == pytest.approx(edge[0].value, rel=1e-12)
+        for edge_name in ("rise", "fall"):
+            assert both.cases["U1"].wave_at(ref, edge_name).t_edge == pytest.approx(
+                slow.cases["U1"].wave_at(ref, edge_name).t_edge, rel=1e-12)
+    f_both, f_fast = both.result.figures, fast.result.figures
+    assert f_both["overshoot"].value == pytest.approx(f_fast["overshoot"].value, rel=1e-12)

@@ -215,7 +215,7 @@ def test_input_errors():
     with pytest.raises(InputError, match="r_source"):
         wf.distributed_response(t, 1.0, 0.0, -1.0, [(50.0, 1e-9)], 1e-12)
     with pytest.warns(ValidityWarning, match="rounded"):
-        wf.distributed_response(t, 1.0, 0.0, 50.0, [(50.0, 13e-12)], 1e-12)
+        wf.distributed_response(t, 1.0, 0.0, 50.0, [(50.0, 3.5e-12)], 1e-12)
 
 
 # --------------------------------------------------------------------------- ngspice

@@ -649,3 +649,23 @@ def test_exported_workbook_renders_its_charts_in_chromium(exported, tmp_path):
     bare = tmp_path / "no-charts.html"
     bare.write_text(re.sub(r"<svg\b.*?</svg>", "", body, flags=re.S), encoding="utf-8")
     assert _chart_pixels(_screenshot(bare, tmp_path)) < 20
+
+
+def test_line_explorer_daisy_chain_offers_each_receiver(library):
+    # invented: a flash and an ADC along a 20 cm trace, each at its own point
+    le = LineExplorer(library, receivers=[("nor-flash-spi", "sclk"), ("adc-spi", "sclk")],
+                      length=0.2)
+    assert le.receiver_view.disabled  # the far end: one point, nothing to choose
+    le.set(placement="daisy chain")
+    assert le.error is None
+    assert not le.receiver_view.disabled
+    assert [v for _, v in le.receiver_view.options] == ["", "U2", "U3"]
+    assert set(le.wave_data.traces) == {f"{e} at {r}" for e in ("rise", "fall")
+                                        for r in ("U2", "U3")}
+    assert "route" in le.design_text()
+    le.set(receiver="U2")
+    assert le.wave_data.receivers == ["U2.sclk"]
+    subjects = {c.subject for c in le.line_result.checks if c.id == "ringing"}
+    assert subjects == {"U2", "U3"}
+    le.set(placement="far end")
+    assert le.receiver_view.disabled and le.receiver_view.value == ""

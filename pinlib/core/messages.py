@@ -185,6 +185,13 @@ SPI_NEEDS_SCLK = "an SPI bus needs its SCLK routing"
 # the limits of pinlib/core/worklimits.py
 TOO_MANY_DEVICES = "too many devices on one {protocol} bus"
 TOO_MANY_SECTIONS = "too many sections on one trace"
+ROUTE_OR_STRETCH = "give either a route or a stretch (length, sections...), not both"
+ROUTE_ON_OPEN_DRAIN = "an open-drain bus's trace takes no route"
+TOO_MANY_ROUTE_STRETCHES = "too many stretches in one route"
+ROUTE_CLOSES_LOOP = "this stretch closes a loop in the route: its two points are already joined"
+ROUTE_NOT_CONNECTED = "this stretch joins nothing of the rest of the route"
+ROUTE_MISSES_DEVICE = "a device on the line is at no point of its route"
+ROUTE_DEVICE_NOT_ON_LINE = "the point names a device of the bus that is not on this line"
 
 # ---------------------------------------------------------------- pinlib/cli/commands/
 NO_FOLDER_FOR_NEW_PART = "no folder to write the new part into"
@@ -270,6 +277,12 @@ Z0_NOT_POSITIVE = "characteristic impedance must be positive"
 SECTION_DELAY_FORM = "section delay must be one number >= 0"
 TIME_STEP_TOO_COARSE = "time step too coarse for a line section"
 MID_JUNCTION_OUT_OF_RANGE = "junction for c_mid out of range"
+# pinlib/physics/waveform/tree.py
+TREE_SECTION_FORM = "a section of a tree must be (a, b, z0, td): two nodes, impedance, delay"
+NODE_INDEX_OUT_OF_RANGE = "not a node of the tree"
+NODE_CAPS_FORM = "node capacitances must be a sequence with one value per node"
+TREE_LOOP = "this section closes a loop: the sections must form a tree"
+TREE_NOT_CONNECTED = "the sections do not join every node"
 # pinlib/physics/lines.py
 PARAMETER_NOT_A_NUMBER = "parameter '{name}' is not a number"
 PARAMETER_OUT_OF_RANGE = "parameter '{name}' is out of range"

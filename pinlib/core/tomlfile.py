@@ -94,11 +94,18 @@ def line_index(text: str) -> dict[tuple, int]:
             path = table + tuple(_split_dotted(a.group(1)))
             index.setdefault(path, number)
             rest = a.group(2)
-            for key in _inline_keys(rest):
+            keys = _inline_keys(rest)
+            for key in keys:
                 index.setdefault(path + key, number)
             if rest.lstrip().startswith("[") and rest.count("[") > rest.count("]"):
                 open_array, depth = path, rest.count("[") - rest.count("]")
                 array_items[path] = 0
+            elif (rest.lstrip().startswith("{") and keys
+                  and rest.count("[") > rest.count("]")):
+                # an inline table whose last key opens an array over several lines
+                # (``lines.sclk = { route = [``)
+                open_array, depth = path + keys[-1], rest.count("[") - rest.count("]")
+                array_items[open_array] = 0
             elif rest.lstrip().startswith("["):
                 # one-line array of inline tables: all items on this line
                 for i in range(rest.count("{")):

@@ -17,7 +17,7 @@ development machine, with the fit store off; ``make bench`` prints the scaling l
 from __future__ import annotations
 
 __all__ = ["MAX_BOARDS", "MAX_DEVICES_OPEN_DRAIN", "MAX_DEVICES_PUSH_PULL",
-           "MAX_SECTIONS_PER_LINE"]
+           "MAX_ROUTE_STRETCHES", "MAX_SECTIONS_PER_LINE"]
 
 #: Devices on one I2C or SMBus bus, over all its segments.  A 10-bit address space has
 #: 1024 addresses (published: I2C-bus specification UM10204, 10-bit addressing), so a
@@ -39,6 +39,13 @@ MAX_DEVICES_PUSH_PULL = 256
 #: stretches on each of four lines take about 2 s and 280 MB, 100 took 39 s and 2.6 GB, 10^4
 #: tried to allocate 51 GiB.
 MAX_SECTIONS_PER_LINE = 32
+
+#: Stretches of one routed push-pull line (``route``): each device on the line is a
+#: point of it, plus the junctions of its branches.  An SPI bus of a few dozen chip
+#: selects on one shared line needs about twice as many stretches as devices (common
+#: practice, no source); the tree solver's time grows with the stretches times the time
+#: steps, and its step divides the shortest stretch's delay, as on a chain of sections.
+MAX_ROUTE_STRETCHES = 64
 
 #: Boards drawn by one Monte Carlo run.  Memory does not grow with it (the boards are
 #: drawn :data:`pinlib.studies.whatif.CHUNK` at a time: 10^6 boards of the demo design

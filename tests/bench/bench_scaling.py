@@ -7,6 +7,8 @@ prints the ratio: k means the cost grows linearly.  The inputs (invented test da
   of the values after it);
 * devices on one I2C bus and on one SPI bus, loaded and checked;
 * sections of one SPI line with a series resistor to choose, loaded and checked;
+* peripherals on one CIPO line (4 -> 8 -> 16 -> 32), every one at the far end or each on
+  a branch of a routed star of its own length;
 * Monte Carlo boards, with the peak of traced memory as well (1 = bounded).
 
 The push-pull engine checks every driver into the pins of every other device, so the
@@ -85,6 +87,33 @@ lines.cipo = {{ length = "3 cm", geometry = "g" }}
 """)
 
 
+def _spi_cipo(n: int, routed: bool) -> str:
+    """An SPI bus of ``n`` peripherals whose CIPO each drives in turn: every device at the
+    far end, or (``routed``) each on a star branch of 1 to 4 cm (every length from 4
+    peripherals on, so that the record, set by the longest branch, does not grow)."""
+    refs = [f"P{i}" for i in range(n)]
+    devices = "".join(f'  {{ ref = "{r}", part = "nor-flash-spi" }},\n' for r in refs)
+    if routed:
+        branches = ", ".join(f'{{ from = "S", to = "{r}", length = "{1 + i % 4} cm", '
+                             'geometry = "g" }' for i, r in enumerate(refs))
+        cipo = (f'{{ route = [{{ from = "U1", to = "S", length = "2 cm", geometry = "g" }}, '
+                f"{branches}] }}")
+    else:
+        cipo = '{ length = "5 cm", geometry = "g" }'
+    return _design(f"""
+[[bus]]
+id = "s"
+protocol = "spi"
+clock = "1 MHz"
+supply = "3.3 V"
+devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
+{devices}]
+lines.sclk = {{ length = "3 cm", geometry = "g" }}
+lines.cipo = {cipo}
+""")
+
+
 def _long_string(length: int) -> str:
     body = _i2c(2).split('er = 4.2\n', 1)[1]
     return _design(body, description='"' + "a" * length + '"')
@@ -149,6 +178,13 @@ def run(repeats: int = 3, quick: bool = False) -> list[Result]:
                             10, tmp, repeats))
         out.append(_scaling(f"SPI bus: {256 // s} devices", _spi(32 // s), _spi(256 // s),
                             8, tmp, repeats, linear=False))
+        # CIPO: each peripheral drives while the others load the line; only the
+        # controller receives it, so the peripherals should cost linearly
+        for n in (4, 8, 16):
+            out.append(_scaling(f"SPI CIPO: {2 * n} peripherals at the far end",
+                                _spi_cipo(n, False), _spi_cipo(2 * n, False), 2, tmp, repeats))
+            out.append(_scaling(f"SPI CIPO: {2 * n} peripherals on a routed star",
+                                _spi_cipo(n, True), _spi_cipo(2 * n, True), 2, tmp, repeats))
         out.append(_scaling("SPI line: 32 sections, auto resistor", _spi(2, 8), _spi(2, 32),
                             4, tmp, repeats))
         # above whatif.SENSITIVITY_BOARDS (100,000), whose draws a run keeps

@@ -14,8 +14,12 @@ How a line is built
   capacitance, high-impedance while deselected).  A driver's own pin capacitance is
   inside its datasheet edges (they were measured with it), so its load is the trace,
   the line's ``extra_capacitance`` and the ``c_in`` of every other pin on the net.
-  Every pin is placed at the far end of the line: the farthest receiver sees the
-  whole line (the conservative place for delay and for reflections).
+  In the simple form every pin is placed at the far end of the line: the farthest
+  receiver sees the whole line (the conservative place for delay and for
+  reflections).  A line with a ``route`` places each pin at its own point of a tree
+  (:mod:`.routes`): each driver drives from its point, each receiver gets its own
+  waveform, checks (their ``subject``) and flights, solved by
+  :func:`pinlib.physics.waveform.tree_response`.
 * **Sections.**  A named geometry goes through :mod:`pinlib.physics.lines` (microstrip
   or stripline, the geometry's ``method`` or the default); per-length values give
   ``Z0 = delay / capacitance``; a cable class gives its capacitance, delay and
@@ -49,8 +53,9 @@ of thumb, so it warns and never fails), ``line-delay`` (the one-way delay within
 period, a rule of thumb that flags a design outside a board-level bus), and ``level-high`` /
 ``level-low`` (the driver's VOH/VOL against each receiver's VIH/VIL at its own supply).
 
-Assumptions and limits: supplies are nominal (the bus's, or a device's own); every
-pin sits at the far end (a receiver part way along is not placed there); the design
+Assumptions and limits: supplies are nominal (the bus's, or a device's own); without a
+route every pin sits at the far end (a receiver part way along is placed only by a
+route); the design
 format gives one route per signal, so a bridging part on the bus is modelled as a load
 on the controller's side of it.
 
@@ -61,6 +66,7 @@ The package, each module importing only those above it:
 - :mod:`.sections`: the sections of a line (:class:`Stretch`) and its model (long or
   short, lumped or distributed);
 - :mod:`.waves`: the edge at the far end (:class:`EdgeWave`), solved on a time grid;
+- :mod:`.routes`: a routed line as a tree (:class:`RouteNet`), its edges at every point;
 - :mod:`.drive`: one driver with its loads and series resistor (:class:`DriveCase`);
 - :mod:`.analysis`: what the engine worked out for a line (:class:`LineAnalysis`);
 - :mod:`.sichecks`: overshoot, undershoot, ringing, levels and edge time;

@@ -8,9 +8,12 @@ import warnings
 from collections.abc import Sequence
 from dataclasses import dataclass, field
 
+import numpy as np
+
 from pinlib.core.quantity import format_si
-from pinlib.engines.pushline.drive import DriveCase, drive_case
+from pinlib.engines.pushline.drive import DriveCase, drive_case, route_case
 from pinlib.engines.pushline.pins import Endpoint
+from pinlib.engines.pushline.routes import RouteNet
 from pinlib.model.design import Line
 from pinlib.model.result import LineResult
 
@@ -48,6 +51,8 @@ class LineAnalysis:
         designator. [1]
     result : LineResult
         Figures and checks. [1]
+    net : RouteNet or None
+        A routed line's tree (each pin at its own point); None for the simple form. [1]
     """
 
     signal: str
@@ -65,6 +70,7 @@ class LineAnalysis:
     edge_alone: float = 0.0
     models: dict = field(default_factory=dict)
     result: LineResult = field(default_factory=LineResult)
+    net: RouteNet | None = None
 
     @property
     def trace_c(self) -> float:
@@ -72,6 +78,9 @@ class LineAnalysis:
 
     @property
     def delay(self) -> float:
+        """One-way delay of the line; of a route, the longest between two points. [s]"""
+        if self.net is not None:
+            return self.net.longest_delay
         return sum(s.td for s in self.stretches)
 
     @property
@@ -95,9 +104,7 @@ class LineAnalysis:
             return kept
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")  # the engine already noted its warnings
-            kept = drive_case(self.stretches, case.driver, self.models[ref],
-                              _others(self.loads, case.driver), 0.0,
-                              self.line.extra_capacitance, long=self.long)
+            kept = _case(self, case.driver, 0.0)
         self.unterminated = {**(self.unterminated or {}), ref: kept}
         return kept
 
@@ -106,13 +113,19 @@ def _others(pins: Sequence[Endpoint], driver: Endpoint) -> list[Endpoint]:
     return [p for p in pins if p.device is not driver.device]
 
 
+def _case(a: LineAnalysis, d: Endpoint, rs: float, rp=None, vp=None) -> DriveCase:
+    """One driver's case: at its own point of a route, else with every pin at the far end."""
+    solve = drive_case if a.net is None else (
+        lambda *args, **kw: route_case(a.net, *args, **kw))
+    return solve(a.stretches, d, a.models[d.ref], _others(a.loads, d), rs,
+                 a.line.extra_capacitance, long=a.long, r_pullup=rp, v_pullup=vp)
+
+
 def _cases(a: LineAnalysis, rs: float, pullup) -> dict:
     out = {}
     for d in a.drivers:
         rp, vp = pullup.get(d.ref, (None, None))
-        out[d.ref] = drive_case(a.stretches, d, a.models[d.ref], _others(a.loads, d), rs,
-                                a.line.extra_capacitance, long=a.long, r_pullup=rp,
-                                v_pullup=vp)
+        out[d.ref] = _case(a, d, rs, rp, vp)
     return out
 
 
@@ -120,10 +133,26 @@ def _fmt(x, unit):
     return format_si(x, unit)
 
 
-def _figures_of(cases: dict) -> dict:
-    return {
-        "edge_rise_time": max(c.rise.t_edge for c in cases.values()),
-        "edge_fall_time": max(c.fall.t_edge for c in cases.values()),
-        "overshoot": max(c.si_wave("rise").overshoot for c in cases.values()),
-        "undershoot": max(c.si_wave("fall").undershoot for c in cases.values()),
-    }
+def _figures_of(cases: dict, receivers=()) -> dict:
+    """The worst edge figures over every driver; on a route the edge times at the points
+    of the receivers (``receivers``: on CIPO the controller only, so the cost stays linear
+    in the peripherals) and the overshoot and undershoot at every pin's point, all nodes
+    of one solve at once."""
+    rise_t, fall_t, over, under = [], [], [], []
+    for c in cases.values():
+        if c.points is None:
+            rise_t.append(c.rise.t_edge)
+            fall_t.append(c.fall.t_edge)
+            over.append(c.si_wave("rise").overshoot)
+            under.append(c.si_wave("fall").undershoot)
+            continue
+        others = [c.net.node(r) for r in c.load_refs] or [c.net.node(c.driver.ref)]
+        sensed = [c.net.node(r.ref) for r in receivers if r.ref != c.driver.ref] or others
+        rise, fall = c.points["rise"], c.points["fall"]
+        rise_t.append(float(np.max(rise.edge_times(sensed))))
+        fall_t.append(float(np.max(fall.edge_times(sensed))))
+        si = c.points if c.fast_points is None else c.fast_points  # the fast corner's
+        over.append(float(np.max(si["rise"].extremes()[0][others])) - si["rise"].v_to)
+        under.append(float(np.max(si["fall"].extremes()[1][others])) + si["fall"].v_to)
+    return {"edge_rise_time": max(rise_t), "edge_fall_time": max(fall_t),
+            "overshoot": max(over), "undershoot": max(under)}

@@ -10,6 +10,7 @@ from dataclasses import dataclass
 from pinlib.core.errors import PinlibError
 from pinlib.engines import memo
 from pinlib.engines.pushline.pins import Endpoint, Flight
+from pinlib.engines.pushline.routes import RouteNet, node_caps, tree_edges
 from pinlib.engines.pushline.rules import _REF_LEVEL
 from pinlib.engines.pushline.sections import Stretch, line_model, needs_distributed
 from pinlib.engines.pushline.waves import EdgeWave, simulate_edge
@@ -47,6 +48,16 @@ class DriveCase:
         The two edges of the driver's fast corner (``model.fast``), when its part states
         one: they set overshoot, undershoot and ringing; ``rise`` and ``fall`` (the slow
         corner) set edge times and timing. [1]
+    net : RouteNet or None
+        A routed line's tree; None for the simple form (every pin at the far end). [1]
+    points : dict or None
+        On a routed line, the :class:`PointWaves` of each edge; ``rise`` and ``fall``
+        are then the edges at the device farthest (in delay) from the driver. [1]
+    load_refs : tuple of str
+        On a routed line, the devices whose pins load the driver. [1]
+    fast_points : dict or None
+        On a routed line, the :class:`PointWaves` of the fast corner's edges, when the
+        driver has one. [1]
     """
 
     driver: Endpoint
@@ -61,6 +72,10 @@ class DriveCase:
     v_high: float
     fast_rise: EdgeWave | None = None
     fast_fall: EdgeWave | None = None
+    net: RouteNet | None = None
+    points: dict | None = None
+    load_refs: tuple = ()
+    fast_points: dict | None = None
 
     def wave(self, edge: str) -> EdgeWave:
         """The edge of the slow corner (edge time, timing). [1]"""
@@ -72,6 +87,26 @@ class DriveCase:
         fast = self.fast_rise if edge == "rise" else self.fast_fall
         return self.wave(edge) if fast is None else fast
 
+    def wave_at(self, ref: str, edge: str) -> EdgeWave:
+        """The edge at a device's own point (a routed line), else at the far end."""
+        if self.points is None:
+            return self.wave(edge)
+        return self.points[edge].at(self.net.node(ref))
+
+    def waves(self, edge: str) -> list[EdgeWave]:
+        """The edge at every other pin's point on a routed line; else at the far end."""
+        if self.points is None:
+            return [self.wave(edge)]
+        return [self.wave_at(r, edge) for r in self.load_refs] or [self.wave(edge)]
+
+    def si_wave_at(self, ref: str, edge: str) -> EdgeWave:
+        """The edge that sets overshoot, undershoot and ringing at a device's own point
+        (the fast corner's, when the driver has one). [1]"""
+        if self.points is None:
+            return self.si_wave(edge)
+        points = self.points if self.fast_points is None else self.fast_points
+        return points[edge].at(self.net.node(ref))
+
     def flight(self, receiver: Endpoint, edge: str) -> Flight:
         """Earliest and latest flight of one edge to a receiver's thresholds. [s]
 
@@ -79,7 +114,7 @@ class DriveCase:
         without thresholds is taken to switch at half its supply.
         """
         v_il, v_ih = _thresholds(receiver)
-        w = self.wave(edge)
+        w = self.wave_at(receiver.ref, edge)
         first, last = (v_il, v_ih) if edge == "rise" else (v_ih, v_il)
         ref = self.ref[edge]
         return Flight(w.crossing(first) - ref, w.crossing(last) - ref)
@@ -279,3 +314,63 @@ def _fast_edges(stretches: Sequence[Stretch], fast: drv.Driver, rs: float, c_far
     fall = simulate_edge(stretches, fast.r_fall + rs, fast.t_ramp_fall, c_far, vdd, 0.0,
                          distributed=distributed, edge="fall")
     return rise, fall
+
+
+def route_case(net: RouteNet, stretches: Sequence[Stretch], driver: Endpoint,
+               model: drv.Driver, loads: Sequence[Endpoint], rs: float, extra_c: float, *,
+               long: bool, r_pullup: float | None = None,
+               v_pullup: float | None = None) -> DriveCase:
+    """Both edges of one driver at its own point of a routed line, at every point.
+
+    Parameters are those of :func:`drive_case`, with ``net`` the route's tree: each
+    load's capacitance sits at its own point, the extra capacitance at the route's far
+    point.  ``rise`` and ``fall`` of the case are the edges at the load farthest in delay
+    from the driver; :meth:`DriveCase.wave_at` gives any device's.
+    """
+    caps = node_caps(net, {p.ref: p.c_in for p in loads}, extra_c)
+    c_far = sum(p.c_in for p in loads) + extra_c
+    src = net.node(driver.ref)
+    c_test = _test_load(driver.device)
+    if driver.pin.drive == "open-drain":
+        rp, v_hi = float(r_pullup), float(v_pullup)
+        leak = sum(float(p.pin.leakage.at()) for p in list(loads) + [driver]
+                   if p.pin.leakage is not None)
+        v_hi = max(v_hi - leak * rp, 0.0)
+        r_sink = model.r_fall + rs
+        v_lo = v_hi * r_sink / (r_sink + rp)
+        r_th = r_sink * rp / (r_sink + rp)
+        distributed = needs_distributed(stretches, r_th, c_far, long)
+        points = {"fall": tree_edges(net, src, r_th, model.t_ramp_fall, caps, v_hi, v_lo,
+                                     distributed=distributed, edge="fall"),
+                  # The pull-up (>> Z0) charges the line as one capacitance.
+                  "rise": tree_edges(net, src, rp, 0.0, caps, v_lo, v_hi, distributed=False,
+                                     edge="rise")}
+        ref = {"rise": _ref_time(0.0, rp * c_test),
+               "fall": _ref_time(model.t_ramp_fall, r_th * c_test)}
+    else:
+        v_lo, v_hi = 0.0, driver.vdd
+        distributed = needs_distributed(stretches, min(model.r_rise, model.r_fall) + rs,
+                                        c_far, long)
+        points = {"rise": tree_edges(net, src, model.r_rise + rs, model.t_ramp_rise, caps,
+                                     0.0, v_hi, distributed=distributed, edge="rise"),
+                  "fall": tree_edges(net, src, model.r_fall + rs, model.t_ramp_fall, caps,
+                                     v_hi, 0.0, distributed=distributed, edge="fall")}
+        ref = {"rise": _ref_time(model.t_ramp_rise, model.r_rise * c_test),
+               "fall": _ref_time(model.t_ramp_fall, model.r_fall * c_test)}
+    fast = None
+    if driver.pin.drive != "open-drain" and model.fast is not None:
+        f = model.fast
+        f_long = long or line_model(stretches, min(
+            float(drv.edge_time(f.r_rise, f.t_ramp_rise, c_far)),
+            float(drv.edge_time(f.r_fall, f.t_ramp_fall, c_far))))[0]
+        f_dist = needs_distributed(stretches, min(f.r_rise, f.r_fall) + rs, c_far, f_long)
+        fast = {"rise": tree_edges(net, src, f.r_rise + rs, f.t_ramp_rise, caps, 0.0, v_hi,
+                                   distributed=f_dist, edge="rise"),
+                "fall": tree_edges(net, src, f.r_fall + rs, f.t_ramp_fall, caps, v_hi, 0.0,
+                                   distributed=f_dist, edge="fall")}
+    delays = net.delays_from(src)
+    far = max((net.node(p.ref) for p in loads), key=delays.__getitem__, default=src)
+    fast_far = (None, None) if fast is None else (fast["rise"].at(far), fast["fall"].at(far))
+    return DriveCase(driver, model, rs, c_far, distributed, points["rise"].at(far),
+                     points["fall"].at(far), ref, v_lo, v_hi, *fast_far, net, points,
+                     tuple(p.ref for p in loads), fast)

@@ -12,6 +12,7 @@ from pinlib.engines import memo
 from pinlib.engines.pushline.analysis import LineAnalysis, _figures_of, _fmt, _others
 from pinlib.engines.pushline.drive import _driver_model, _open_drain_model, _pullups
 from pinlib.engines.pushline.pins import Endpoint
+from pinlib.engines.pushline.routes import route_net
 from pinlib.engines.pushline.rules import (
     _FIGURE_UNITS,
     LINE_DELAY_RULE,
@@ -147,13 +148,15 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
     series resistor and the final cases, checks, figures."""
     notes = res.notes
     stretches = line_stretches(line)
+    net = route_net(line.route, stretches) if line.route else None
     a = LineAnalysis(signal, line, stretches, list(drivers), list(loads), list(receivers),
-                     result=res)
+                     result=res, net=net)
     if not a.drivers:
         raise DesignError(M.NO_DRIVER_ON_LINE, field=f"lines.{signal}",
                           hint="a push-pull or open-drain pin must sit on the line")
     if any(not s.td > 0 for s in stretches) and stretches:
-        notes.append("a section without a delay counts as a lumped capacitance at the far end")
+        notes.append("a section without a delay counts as a lumped capacitance "
+                     + ("half at each of its two points" if net else "at the far end"))
     pullup = _driver_models(a, res)
     if not a.drivers:
         for name, unit in _FIGURE_UNITS:
@@ -216,14 +219,18 @@ def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
 def _electrical_length(a: LineAnalysis, notes: list) -> None:
     """Electrical length against the fastest edge into the pins alone."""
     alone = []
+    # every pin's capacitance once; each driver's load is all of them but its own
+    c_in = {id(p.device): p.c_in for p in a.loads}
+    c_all = sum(c_in.values())
     for d in a.drivers:
         m = a.models[d.ref]
-        c_pins = sum(p.c_in for p in _others(a.loads, d)) + a.line.extra_capacitance
+        c_pins = c_all - c_in.get(id(d.device), 0.0) + a.line.extra_capacitance
         alone.append(_edge_alone(m.r_fall, m.t_ramp_fall, c_pins))
         if d.pin.drive != "open-drain":
             alone.append(_edge_alone(m.r_rise, m.t_ramp_rise, c_pins))
     a.edge_alone = min(alone)
-    a.long, a.ratio = line_model(a.stretches, a.edge_alone)
+    a.long, a.ratio = line_model(a.stretches, a.edge_alone,
+                                 td=a.delay if a.net is not None else None)
     notes.append(f"one-way delay {_fmt(a.delay, 's')} is {a.ratio:.2f} of the driver's "
                  f"{_fmt(a.edge_alone, 's')} edge into the pins alone: "
                  f"{'electrically long' if a.long else 'electrically short'} "
@@ -259,7 +266,7 @@ def _add_checks(a: LineAnalysis, res: LineResult, clock, clock_line, warn_margin
 
 def _add_figures(a: LineAnalysis, res: LineResult) -> None:
     """The line's figures, in the order of ``_FIGURE_UNITS``."""
-    figs = _figures_of(a.cases)
+    figs = _figures_of(a.cases, a.receivers)
     res.figure("load_capacitance", a.trace_c + max(c.c_far for c in a.cases.values()), "F")
     res.figure("trace_delay", a.delay, "s")
     res.figure("z0", a.z0, "Ω")

@@ -92,7 +92,8 @@ def stretches_of(sections: Sequence[Section]) -> list[Stretch]:
     return out
 
 
-def line_model(stretches: Sequence[Stretch], edge_time: float) -> tuple[bool, float]:
+def line_model(stretches: Sequence[Stretch], edge_time: float, *,
+               td: float | None = None) -> tuple[bool, float]:
     """Whether a line is electrically long, by :data:`LONG_LINE_RULE`.
 
     Parameters
@@ -101,6 +102,9 @@ def line_model(stretches: Sequence[Stretch], edge_time: float) -> tuple[bool, fl
         The line's sections. [1]
     edge_time : float
         The driver's 10-90 % edge into the pins alone. [s]
+    td : float, optional
+        The line's one-way delay when it is not the sum of its stretches' (a route: the
+        longest between two of its points). [s]
 
     Returns
     -------
@@ -109,7 +113,7 @@ def line_model(stretches: Sequence[Stretch], edge_time: float) -> tuple[bool, fl
     ratio : float
         One-way delay over edge time. [1]
     """
-    td = sum(s.td for s in stretches)
+    td = sum(s.td for s in stretches) if td is None else td
     ratio = td / edge_time if edge_time > 0 else (math.inf if td > 0 else 0.0)
     return bool(ratio > LONG_LINE_FRACTION), float(ratio)
 

@@ -3,6 +3,8 @@ levels and edge time."""
 
 from __future__ import annotations
 
+import numpy as np
+
 from pinlib.engines.pushline.analysis import LineAnalysis, _fmt
 from pinlib.engines.pushline.pins import Endpoint
 from pinlib.engines.pushline.rules import (
@@ -20,8 +22,10 @@ def _si_checks(a: LineAnalysis, cases: dict, clock: float | None, clock_line: bo
                warn: float) -> list[Check]:
     """Overshoot, undershoot, ringing, edge time and levels of a line's final cases."""
     checks: list[Check] = []
+    table = (*_swing_table(cases), a.net,
+             np.array([c.fast_rise is not None for c in cases.values()], dtype=bool))
     for p in a.loads:
-        checks += _swing_checks(p, cases, warn)
+        checks += _swing_checks(p, table, warn)
     drivers = {d.ref: d for d in a.drivers}
     for rx in a.receivers:
         v_il, v_ih = rx.level("v_il"), rx.level("v_ih")
@@ -31,27 +35,53 @@ def _si_checks(a: LineAnalysis, cases: dict, clock: float | None, clock_line: bo
         for ref, c in cases.items():
             if ref != rx.ref:
                 checks += _level_checks(rx, drivers[ref], c, v_il, v_ih, warn)
-    if clock:
+    if clock and a.net is not None:
+        checks += [_edge_check(cases, clock, warn, rx) for rx in a.receivers]
+    elif clock:
         checks.append(_edge_check(cases, clock, warn))
     return checks
 
 
-def _swing_checks(p: Endpoint, cases: dict, warn: float) -> list[Check]:
-    """Overshoot and undershoot at one pin against its abs_max (none without one)."""
+def _swing_table(cases: dict) -> tuple[list, np.ndarray, np.ndarray]:
+    """Each driver's peak (rise: high level plus overshoot) and dip (fall: undershoot
+    minus the low level): one value per driver, or on a route one per driver and node,
+    each computed once (a line of N drivers and N pins costs N solves' extremes, not N²
+    edge records). [V]"""
+    refs = list(cases)
+    peaks, dips = [], []
+    for c in cases.values():  # the fast corner's edges, where a driver has one
+        if c.points is None:
+            rise, fall = c.si_wave("rise"), c.si_wave("fall")
+            peaks.append(rise.v_to + rise.overshoot)
+            dips.append(fall.undershoot - fall.v_to)
+        else:
+            si = c.points if c.fast_points is None else c.fast_points
+            peaks.append(si["rise"].extremes()[0])
+            dips.append(si["fall"].extremes()[1])
+    return refs, np.asarray(peaks, dtype=float), np.asarray(dips, dtype=float)
+
+
+def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
+    """Overshoot and undershoot at one pin against its abs_max (none without one), over
+    every other driver's edges (at the pin's own point on a route)."""
     abs_max = p.level("abs_max")
     if abs_max is None:
         return []
-    own = [c for ref, c in cases.items() if ref != p.ref]
-    if not own:
+    refs, peaks, dips, net, fast = table
+    own = np.array([r != p.ref for r in refs], dtype=bool)
+    if not own.any():
         return []
-    peak = max(c.si_wave("rise").v_to + c.si_wave("rise").overshoot for c in own)
+    if net is not None:
+        node = net.node(p.ref)
+        peaks, dips = peaks[:, node], dips[:, node]
+    peak = float(peaks[own].max())
     allowed = abs_max - p.vdd
     above = peak - p.vdd
     if abs(above) <= 1e-12 * max(abs(peak), 1.0):
         above = 0.0  # a settled edge at the supply: the difference is float rounding
-    dip = max(c.si_wave("fall").undershoot - c.si_wave("fall").v_to for c in own)
+    dip = float(dips[own].max())
     low_allowed = min(allowed, UNDERSHOOT_DEFAULT)
-    corner = _corner(own, "fast")
+    corner = " (fast corner)" if fast[own].any() else ""
     return [
         check_max(
             "overshoot", above, allowed, "V", p.source("abs_max"),
@@ -81,7 +111,7 @@ def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
         if ref == rx.ref:
             continue
         for edge in ("rise", "fall"):
-            w = c.si_wave(edge)
+            w = c.si_wave_at(rx.ref, edge)
             got = wf.recrossings(w.t, w.v, v_il, v_ih, edge=edge)
             prev = counts.get(edge, (0, 0))
             counts[edge] = (max(prev[0], int(got.entry)), max(prev[1], int(got.opposite)))
@@ -139,13 +169,20 @@ def _level_checks(rx: Endpoint, d: Endpoint, c, v_il: float, v_ih: float,
     ]
 
 
-def _edge_check(cases: dict, clock: float, warn: float) -> Check:
-    """The slowest 10-90 % edge against a fraction of the clock period (a rule of thumb)."""
-    edge = max(max(c.rise.t_edge, c.fall.t_edge) for c in cases.values())
+def _edge_check(cases: dict, clock: float, warn: float, rx: Endpoint | None = None) -> Check:
+    """The slowest 10-90 % edge against a fraction of the clock period (a rule of thumb):
+    at the far end, or on a route at one receiver's point (from every other driver)."""
+    if rx is None:
+        edge = max(max(c.rise.t_edge, c.fall.t_edge) for c in cases.values())
+        where, subject = "the far end", None
+    else:
+        edge = max((max(c.wave_at(rx.ref, "rise").t_edge, c.wave_at(rx.ref, "fall").t_edge)
+                    for ref, c in cases.items() if ref != rx.ref), default=0.0)
+        where, subject = rx.label, rx.ref
     limit = EDGE_FRACTION / clock
     return rule_of_thumb(check_max(
         "edge-time", edge, limit, "s", EDGE_RULE,
-        f"slowest 10-90 % edge {_fmt(edge, 's')} at the far end against "
+        f"slowest 10-90 % edge {_fmt(edge, 's')} at {where} against "
         f"{EDGE_FRACTION:.0%} of the {_fmt(1.0 / clock, 's')} period"
         + _corner(cases.values(), "slow"),
-        warn_margin=warn, details={"fraction": EDGE_FRACTION}))
+        warn_margin=warn, subject=subject, details={"fraction": EDGE_FRACTION}))

@@ -105,11 +105,11 @@ def auto_ideal(a: LineAnalysis) -> tuple[float, float | None]:
 
 def _termination_check(a: LineAnalysis) -> Check:
     """What "auto" chose, with the figures with and without the resistor."""
-    with_f = _figures_of(a.cases)
+    with_f = _figures_of(a.cases, a.receivers)
     details = {"rs_chosen": a.rs, "rs_ideal": a.rs_ideal, "z0": a.z0,
                "delay_to_edge_ratio": a.ratio, "with": with_f}
     if a.unterminated is not None:
-        details["without"] = _figures_of(a.unterminated)
+        details["without"] = _figures_of(a.unterminated, a.receivers)
     else:
         details["without"] = with_f
     wo = details["without"]

@@ -59,6 +59,7 @@ from pinlib.model.design.raw import (  # noqa: F401
     RawDesign,
     RawDevice,
     RawGeometry,
+    RawRouteStretch,
     RawSection,
     RawSegment,
     RawTrace,

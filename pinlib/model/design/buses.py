@@ -9,6 +9,7 @@ from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_of
 from pinlib.model.design.objects import Bus, Device, Line, Segment
 from pinlib.model.design.raw import SIGNAL_FUNCTION, SPI_SIGNALS, RawBus
+from pinlib.model.design.route import route_of
 
 _SEGMENT_KEYS = ("supply", "supply_tolerance", "pullup", "pullup_tolerance", "pullup_series",
                  "trace", "extra_capacitance", "capacitance_tolerance", "length_tolerance")
@@ -132,7 +133,12 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err) -> Bus:
         loc = bloc + ("lines", sig)
         if rb.protocol == "spi" and sig not in SPI_SIGNALS:
             raise err(M.UNKNOWN_SPI_SIGNAL, loc, value=sig, expected=", ".join(SPI_SIGNALS))
-        lines[sig] = Line(sig, sections(rt, loc), rt.series_resistor, rt.extra_capacitance, loc)
+        if rt.route:
+            secs, points = route_of(rt, loc, devices, rb.protocol, sig, len(rb.lines),
+                                    sections, err)
+        else:
+            secs, points = sections(rt, loc), ()
+        lines[sig] = Line(sig, secs, rt.series_resistor, rt.extra_capacitance, loc, points)
     if rb.protocol == "spi":
         if rb.clock is None:
             raise err(M.SPI_NEEDS_CLOCK, bloc + ("clock",),

@@ -93,6 +93,10 @@ class Line:
     series_resistor: object           # "auto", "none" or a resistance [Ω]
     extra_capacitance: float = 0.0
     loc: tuple = ()
+    # A routed line: the (from, to) points of each of ``sections``, index by index; the
+    # points form a tree, each device on the line at the point named by its reference
+    # designator.  Empty: the simple form, every pin at the far end of ``sections``.
+    route: tuple[tuple[str, str], ...] = ()
 
     @property
     def length(self) -> float:

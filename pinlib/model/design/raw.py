@@ -116,8 +116,20 @@ class RawSection(_Raw):
     part: str | None = None           # a cable class from the library
 
 
+PointName = Annotated[str, Field(min_length=1, max_length=40)]
+
+
+class RawRouteStretch(RawSection):
+    """One stretch of a routed line between two points: a device's reference designator on
+    the line, or a junction named freely (``"T1"``)."""
+
+    from_: PointName = Field(alias="from")
+    to: PointName
+
+
 class RawTrace(RawSection):
     sections: tuple[RawSection, ...] = ()
+    route: tuple[RawRouteStretch, ...] = ()  # push-pull lines only
     length: Length | None = None  # type: ignore[assignment]
     series_resistor: SeriesSetting = "none"  # push-pull lines only
     extra_capacitance: Capacitance = 0.0

@@ -73,6 +73,9 @@ class _Resolver:
         if t is None:
             return ()
         err = self.err
+        if getattr(t, "route", ()):  # a push-pull line's route is read by .route
+            raise err(M.ROUTE_ON_OPEN_DRAIN, loc + ("route",),
+                      hint="give its devices one trace; a route is for SPI and GPIO lines")
         subs = getattr(t, "sections", ())
         if subs:
             if t.length is not None or t.geometry or t.capacitance or t.part:

@@ -7,6 +7,9 @@ Two circuit models and a set of waveform metrics:
 * :func:`distributed_response` -- the same source into a chain of lossless line
   sections with capacitive loads, solved by the method of characteristics
   (Bergeron) on a uniform time grid;
+* :func:`tree_response` -- the same source at any node of a tree of lossless lines
+  (a route: daisy chain, stubs, star) with a capacitance at every node, the waveform
+  at every node (``distributed_response`` is its chain);
 * :func:`edge_time`, :func:`threshold_delay`, :func:`overshoot`, :func:`undershoot`,
   :func:`recrossings` -- figures read off a sampled waveform.
 
@@ -19,23 +22,26 @@ the falling edge of a circuit is ``vdd`` minus the rising edge of the same circu
 whose output resistance differs between the edges is modelled by passing the
 falling-edge ``r_source`` in the call for the fall.
 
-Modules: ``metrics`` (the figures read off a waveform) and ``circuits`` (the two
-circuit models); this package re-exports their names.
+Modules: ``metrics`` (the figures read off a waveform), ``march`` (the method of
+characteristics over a network of lines), ``tree`` (a tree of lines) and ``circuits``
+(the lumped and chain models); this package re-exports their names.
 """
 
 from __future__ import annotations
 
 from pinlib.core.errors import InputError, ValidityWarning  # noqa: F401
 from pinlib.physics.waveform.circuits import (  # noqa: F401
+    Waveform,
+    distributed_response,
+    lumped_response,
+)
+from pinlib.physics.waveform.march import (  # noqa: F401
     _DELAY_ROUNDING_WARN,
     _GRID_RTOL,
     _MAX_BLOCK,
     _MAX_BLOCK_ELEMENTS,
-    Waveform,
     _phi,
     _source_samples,
-    distributed_response,
-    lumped_response,
 )
 from pinlib.physics.waveform.metrics import (  # noqa: F401
     _SETTLED_RTOL,
@@ -49,6 +55,12 @@ from pinlib.physics.waveform.metrics import (  # noqa: F401
     threshold_delay,
     undershoot,
 )
+from pinlib.physics.waveform.tree import (  # noqa: F401
+    STEPS_PER_EDGE,
+    TreeWaveform,
+    choose_step,
+    tree_response,
+)
 
 __all__ = [
     "Waveform",
@@ -60,4 +72,8 @@ __all__ = [
     "recrossings",
     "lumped_response",
     "distributed_response",
+    "TreeWaveform",
+    "tree_response",
+    "choose_step",
+    "STEPS_PER_EDGE",
 ]

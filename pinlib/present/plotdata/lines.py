@@ -195,13 +195,13 @@ def edge_vs_load_data(bus: Bus, design: Design, signal: str, *, driver: str | No
                   "figure the checks use."))
 
 
-def _receiver_levels(la, ref: str) -> tuple[float, float, list[str]]:
-    """Lowest VIL and highest VIH of the line's receivers other than the driver; a
-    receiver without thresholds switches at half its supply, as in the line engine
-    (:meth:`pinlib.engines.pushline.DriveCase.flight`)."""
+def _receiver_levels(la, ref: str, only: str | None = None) -> tuple[float, float, list[str]]:
+    """Lowest VIL and highest VIH of the line's receivers other than the driver (or of
+    the one named ``only``); a receiver without thresholds switches at half its supply,
+    as in the line engine (:meth:`pinlib.engines.pushline.DriveCase.flight`)."""
     lows, highs, names = [], [], []
     for rx in la.receivers:
-        if rx.ref == ref:
+        if rx.ref == ref or (only is not None and rx.ref != only):
             continue
         v_il, v_ih = rx.level("v_il"), rx.level("v_ih")
         half = 0.5 * rx.vdd
@@ -223,8 +223,20 @@ def _window_end(waves) -> float:
     return min(_WINDOW_PAD * end, record) if end > 0 else record
 
 
+def _route_waves(la, ref: str, case, receiver: str | None, cases: dict) -> dict:
+    """The traces of a routed line: at one receiver's point (with and without the series
+    resistor, as the far end of the simple form), or the final case at every receiver's
+    point (``"rise at U3"``)."""
+    if receiver is not None:
+        return {f"{edge}, {name}": c.wave_at(receiver, edge) for name, c in cases.items()
+                for edge in ("rise", "fall")}
+    return {f"{edge} at {rx.ref}": case.wave_at(rx.ref, edge)
+            for rx in la.receivers if rx.ref != ref for edge in ("rise", "fall")}
+
+
 def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None = None,
-                  analysis=None, points: int = _WAVE_POINTS) -> WaveformData:
+                  analysis=None, points: int = _WAVE_POINTS,
+                  receiver: str | None = None) -> WaveformData:
     """Far-end waveforms of a push-pull line, with and without its series resistor.
 
     Parameters
@@ -241,12 +253,17 @@ def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None =
         The bus's result, or the lines already solved (:func:`line_analyses`). [1]
     points : int, optional
         About how many samples each trace gets on the chart. [1]
+    receiver : str, optional
+        On a routed line, the device whose point the traces are taken at (with and
+        without the series resistor); by default every receiver's, with the line's
+        series resistor, on one chart.  Ignored on a line without a route. [1]
 
     Returns
     -------
     WaveformData
         Rise and fall at the far end: with the line's series resistor (the engine's
-        final case) and without it, when the line has one.
+        final case) and without it, when the line has one; on a routed line at the
+        receivers' own points (``receiver``).
 
     Notes
     -----
@@ -277,8 +294,14 @@ def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None =
                          "drawn")
     else:
         cases["no series R"] = case
-    waves = {f"{edge}, {name}": c.wave(edge) for name, c in cases.items()
-             for edge in ("rise", "fall")}
+    if la.net is not None:
+        waves = _route_waves(la, ref, case, receiver, cases)
+        if receiver is None:
+            notes.append("each receiver at its own point of the route, with the line's "
+                         "series resistor")
+    else:
+        waves = {f"{edge}, {name}": c.wave(edge) for name, c in cases.items()
+                 for edge in ("rise", "fall")}
     end = _window_end(list(waves.values()))
     grid = [np.linspace(0.0, end, max(int(points), 2))]
     for w in waves.values():
@@ -287,7 +310,7 @@ def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None =
                 grid.append(np.array([w.t[k]]))
     t = np.unique(np.concatenate(grid))
     traces = {name: np.interp(t, w.t, w.v) for name, w in waves.items()}
-    v_il, v_ih, rx = _receiver_levels(la, ref)
+    v_il, v_ih, rx = _receiver_levels(la, ref, receiver if la.net is not None else None)
     if not rx:
         notes.append("no receiving input on the line other than the driver")
     vdd = float(case.v_high)

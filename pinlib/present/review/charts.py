@@ -79,8 +79,12 @@ def _push_pull_charts(bus, design, result: BusResult, keys, charts):
             title = f"Receiver waveforms: {bus.id} {sig.upper()} from {ref}"
             rx = ", ".join(w.receivers) or "no receiver"
             over = "; ".join(f"{n}: overshoot {_f(v, 'V')}" for n, v in w.overshoot.items())
-            caption = (f"Voltage at the far end ({rx}) for a rising and a falling edge of "
-                       f"{ref}" + (", with and without the series resistor" if e.rs else "")
+            routed = la.net is not None
+            caption = ((f"Voltage at each receiver's own point of the route ({rx}) for a "
+                        f"rising and a falling edge of {ref}" if routed else
+                        f"Voltage at the far end ({rx}) for a rising and a falling edge of "
+                        f"{ref}") + (", with and without the series resistor"
+                                     if e.rs and not routed else "")
                        + f". Shaded: the band between VIL {_f(w.v_il, 'V')} and VIH "
                        f"{_f(w.v_ih, 'V')}; dotted: VDD {_f(w.vdd, 'V')}. {over}."
                        + ("".join(f" {n}." for n in w.notes)))

@@ -29,6 +29,7 @@ from pinlib.present.review.text import (
     _margin,
     _message,
     _no_snapshot_text,
+    _route_of,
     _value,
 )
 
@@ -177,6 +178,10 @@ class _Html:
             sid = anchor + suffix
             self.w(f'<section id="{sid}" aria-labelledby="h-{sid}">',
                    f'<h3 id="h-{sid}">{_e(head)} {_badge(grp.status)}</h3>')
+            route = _route_of(design_bus, place)
+            if route:
+                self.w(f'<pre class="route" aria-label="Route of {_e(head)}">'
+                       + _e("\n".join(route)) + "</pre>")
             self.group(grp, place, f"{b.id} {head.lower()}", level=4)
             self.w("</section>")
         self.w("</section>")

@@ -28,6 +28,7 @@ from pinlib.present.review.text import (
     _groups,
     _margin,
     _message,
+    _route_of,
     _value,
 )
 
@@ -156,6 +157,9 @@ class _Markdown:
                 self.group(grp, place, "###")
                 continue
             self.w(f"### {_mt(head)}: {_MARK[grp.status]}", "")
+            route = _route_of(design_bus, place)
+            if route:
+                self.w(*_fenced("\n".join(route)), "")
             self.group(grp, place, "####")
 
     def group(self, g: Group, place, h: str):

@@ -67,3 +67,58 @@ def _no_snapshot_text(design) -> str:
     path = getattr(design, "path", None)
     shown = str(path) if path else "DESIGN"
     return M.NO_SNAPSHOT_TO_COMPARE.format(design=shown)
+
+
+def _length_text(metres: float) -> str:
+    """A stretch's length as the diagram writes it: mm, cm or m."""
+    if metres < 0.01:
+        return f"{metres * 1000:.3g} mm"
+    if metres < 1.0:
+        return f"{metres * 100:.3g} cm"
+    return f"{metres:.3g} m"
+
+
+def route_diagram(line) -> list[str]:
+    """A routed line as text, one row per path: the route's first point, then at each
+    point its first stretch onwards on the same row (``U1 ─2 cm─ T1 ─13 cm─ U3``), every
+    other stretch from a point on a row of its own below, indented to that point
+    (``└ T1 ─1 cm─ U2``).  Empty for a line without a route."""
+    points = list(getattr(line, "route", ()) or ())
+    if not points:
+        return []
+    lengths = [s.length for s in line.sections]
+    children: dict[str, list[tuple[str, float]]] = {}
+    seen = {points[0][0]}
+    todo = [points[0][0]]
+    while todo:  # orient the tree away from its first point (each point once)
+        p = todo.pop(0)
+        for (a, b), length in zip(points, lengths, strict=True):
+            for x, y in ((a, b), (b, a)):
+                if x == p and y not in seen:
+                    seen.add(y)
+                    children.setdefault(p, []).append((y, length))
+                    todo.append(y)
+    rows: list[str] = []
+    starts = [(points[0][0], "")]  # (the point a row goes on from, the row so far)
+    while starts:
+        point, row = starts.pop(0)
+        row += point
+        branches = []
+        while children.get(point):
+            (nxt, length), *rest = children[point]
+            column = len(row) - len(point)
+            branches += [(child, " " * column + f"└ {point} ─{_length_text(ln)}─ ")
+                         for child, ln in rest]
+            row += f" ─{_length_text(length)}─ {nxt}"
+            point = nxt
+        rows.append(row)
+        starts[0:0] = branches  # a row's branches follow it, in the order they leave it
+    return rows
+
+
+def _route_of(design_bus, place) -> list[str]:
+    """The route diagram of a line's place in the report (empty for anything else)."""
+    if design_bus is None or place[0] != "line":
+        return []
+    line = design_bus.lines.get(place[2])
+    return route_diagram(line) if line is not None else []

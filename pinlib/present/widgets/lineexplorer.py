@@ -78,11 +78,16 @@ class LineExplorer(_Panel):
         Trace length. [m]
     series : str or float
         ``"auto"``, ``"none"`` or an E24 resistance. [Ω]
+    placement : str
+        ``"far end"`` (every receiver at the end of the trace) or ``"daisy chain"``
+        (the line routed U1 -> U2 -> U3 ..., the trace cut into equal stretches between
+        the receivers in their order, each receiver solved at its own point). [1]
 
     Settings for :meth:`set` (SI units): ``driver_part``, ``driver_pin``, ``supply``,
     ``geometry``, ``length``, ``width``, ``height``, ``thickness``, ``er``,
     ``capacitance_per_length``, ``delay_per_length``, ``series`` (``"auto"``,
-    ``"none"`` or an E24 value), ``any_function``.
+    ``"none"`` or an E24 value), ``any_function``, ``placement``, ``receiver`` (on a
+    daisy chain: the receiver whose waveforms are drawn, ``""`` for all of them).
 
     Attributes
     ----------
@@ -102,7 +107,8 @@ class LineExplorer(_Panel):
 
     def __init__(self, library: Library | None = None, *, folders=(),
                  driver=("mcu-3v3", "sclk"), receivers=(("display-controller-spi", "sclk"),),
-                 supply: float = 3.3, length: float = 0.28, series="auto"):
+                 supply: float = 3.3, length: float = 0.28, series="auto",
+                 placement: str = "far end"):
         super().__init__()
         self.folders = [Path(f) for f in folders]
         self.library = library if library is not None else load_library(self.folders)
@@ -139,6 +145,14 @@ class LineExplorer(_Panel):
         self.series = W.SelectionSlider(options=_e24_options(1.0, 1000.0), value=33.0,
                                         description="Rs (E24)", continuous_update=False,
                                         style=style(), layout=field_layout())
+        self.placement = W.ToggleButtons(options=["far end", "daisy chain"], value=placement
+                                         if placement in ("far end", "daisy chain")
+                                         else "far end", description="Receivers at",
+                                         style=style(button_width="96px"),
+                                         layout=toggle_layout())
+        self.receiver_view = W.Dropdown(options=[("every receiver", "")], value="",
+                                        description="Waveforms at", style=style(),
+                                        layout=field_layout(), disabled=True)
         self.edges = ChartView()
         self.waves = ChartView()
         self.figures_html = W.HTML(layout=block_layout())
@@ -148,13 +162,15 @@ class LineExplorer(_Panel):
         self.driver_part.observe(self._driver_changed, names="value")
         self.driver_pin.observe(self._pin_changed, names="value")
         self.any_function.observe(self._pin_changed, names="value")
-        self._watch(self.series_mode, self.series)
+        self._watch(self.series_mode, self.series, self.placement, self.receiver_view)
         self.add_button.on_click(lambda _b: self.pick.value and
                                  self.add_receiver(*self.pick.value))
         self.remove_button.on_click(lambda _b: self.placed.value and
                                     self.remove_receiver(self.placed.value))
         self._choice("driver_part", self.driver_part)
         self._choice("driver_pin", self.driver_pin)
+        self._choice("placement", self.placement)
+        self._choice("receiver", self.receiver_view)
         self._setters["any_function"] = lambda v: setattr(self.any_function, "value", bool(v))
         self._setters["series"] = self._set_series
 
@@ -256,6 +272,11 @@ class LineExplorer(_Panel):
         devices += [{"ref": r, "part": p, "pin": n} for r, p, n in self._receivers]
         bus.add("devices", _devices_array(devices))
         entry = self.trace.entry("trace")
+        refs = ["U1"] + [r for r, _, _ in self._receivers]
+        if self.placement.value == "daisy chain" and len(refs) > 1:
+            each = f"{_num(self.trace.length.value * 100.0 / (len(refs) - 1))} cm"
+            entry = {"route": [_inline({"from": a, "to": b, **entry, "length": each})
+                               for a, b in zip(refs, refs[1:], strict=False)]}
         mode = self.series_mode.value
         entry["series_resistor"] = mode if mode != "fixed" else f"{_num(self.series.value)} Ω"
         lines = tomlkit.table()
@@ -273,7 +294,8 @@ class LineExplorer(_Panel):
             solved = result.buses[0]
             edge = plotdata.edge_vs_load_data(bus, design, self.signal, analysis=solved)
             wave = plotdata.waveform_data(bus, design, self.signal, analysis=solved,
-                                          points=self.wave_points)
+                                          points=self.wave_points,
+                                          receiver=self._receiver_shown(bus))
         except PinlibError as err:
             self.design = self.result = self.line_result = None
             self.figures, self.edge_data, self.wave_data = {}, None, None
@@ -295,6 +317,21 @@ class LineExplorer(_Panel):
         self.figures_html.value = figures_table(self.figures)
         self.checks_html.value = checks_table(br)
         self.notes_html.value = notes_html([br, self.line_result])
+
+    def _receiver_shown(self, bus) -> str | None:
+        """The receiver chooser follows the route: on a daisy chain it offers every
+        receiver (its choice kept while it stays on the line), on the far end it is
+        disabled; returns the receiver to draw, None for all."""
+        routed = bool(bus.lines[self.signal].route)
+        options = [("every receiver", "")] + (
+            [(f"{r}  {p}: {n}", r) for r, p, n in self._receivers] if routed else [])
+        keep = self.receiver_view.value if self.receiver_view.value in _values(options) else ""
+        with self._hold():
+            if list(self.receiver_view.options) != options:
+                self.receiver_view.options = options
+            self.receiver_view.value = keep
+            self.receiver_view.disabled = not routed
+        return keep or None
 
     def _show_series(self) -> None:
         """The Rs slider shows the resistor in use: with ``auto`` the engine's choice (the
@@ -323,7 +360,8 @@ class LineExplorer(_Panel):
             return
         self.waves.draw(lambda: charts.spec(
             charts.waveforms, w.t, w.traces, v_il=w.v_il, v_ih=w.v_ih, vdd=w.vdd,
-            title="Far-end waveforms",
+            title=("Receiver waveforms" if self.placement.value == "daisy chain"
+                   else "Far-end waveforms"),
             subtitle="at " + ", ".join(w.receivers)))
 
     def static_view(self) -> StaticView:
@@ -341,6 +379,7 @@ class LineExplorer(_Panel):
             self.pick_note, with_button(self.placed, self.remove_button),
             heading("Trace"), self.trace.box,
             heading("Termination"), self.series_mode, self.series,
+            heading("Placement"), self.placement, self.receiver_view,
         ]
         outputs = [self.held_html, self.status_html, self.edges.widget, self.waves.widget,
                    self.figures_html, self.notes_html]

@@ -1,0 +1,267 @@
+"""A routed line (``route``) as a tree of nodes and lossless sections, and its edges at every
+point (:class:`RouteNet`, :func:`tree_edges`).
+
+The route of the design names its points (devices and junctions); here each point is a
+node, each stretch a section between two nodes, each pin's capacitance sits at its
+device's node and the line's ``extra_capacitance`` at the point farthest (in delay)
+from the route's first point.  A stretch without a delay is a lumped capacitance, half at
+each of its ends, joining them into one node.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import numpy as np
+
+from pinlib.engines import memo
+from pinlib.engines.pushline.rules import (
+    _MAX_STEPS,
+    _MIN_STEPS,
+    _SETTLE_DELAYS,
+    _SETTLED,
+    _STEPS_PER_TAU,
+)
+from pinlib.engines.pushline.sections import Stretch
+from pinlib.engines.pushline.waves import EdgeWave, _grid
+from pinlib.physics import waveform as wf
+
+#: Times a route's record is lengthened (threefold) to settle.  The branches of a lossless
+#: tree ring among themselves, damped only through the driver: a star of unequal
+#: branches measured 300 ns to settle within 1 % against 25 ns of its first record,
+#: though its edges were measured long before.  The solver cannot go on from where a
+#: record ends, so each extension solves again three times as long: a route keeps its
+#: first record and says so in a note when it has not settled (the chain, whose far end
+#: settles far sooner, still lengthens its record).
+_ROUTE_EXTENSIONS = 0
+
+#: Time constants of ``r_source`` into the whole capacitance in a route's record (the
+#: chain takes 12).  One pole is within 1 % of its final value after ln(100) = 4.6 of
+#: them and past its 90 % point after 2.3 (derived from exp(-t/tau)); 6 leave room for
+#: the tree's reflections on top.  The record is what grows with the devices on a line
+#: (each pin adds to tau), so this sets how the peripherals of a CIPO route cost.
+_ROUTE_SETTLE_TAUS = 6.0
+
+
+@dataclass(frozen=True)
+class RouteNet:
+    """The nodes and sections of a routed line.
+
+    Attributes
+    ----------
+    names : tuple of str
+        The point of each node (a device's reference designator or a junction). [1]
+    sections : tuple of (int, int, Stretch)
+        Each stretch of the route between its two nodes, in the route's order. [1]
+    far : int
+        The node farthest in delay from the route's first point (the line's
+        ``extra_capacitance`` sits there). [1]
+    """
+
+    names: tuple[str, ...]
+    sections: tuple[tuple[int, int, Stretch], ...]
+    far: int
+
+    def node(self, ref: str) -> int:
+        """The node of a point. [1]"""
+        return self.names.index(ref)
+
+    def delays_from(self, start: int) -> list[float]:
+        """One-way delay from node ``start`` to every node along the tree. [s]"""
+        adj: dict[int, list[tuple[int, float]]] = {i: [] for i in range(len(self.names))}
+        for a, b, s in self.sections:
+            adj[a].append((b, s.td))
+            adj[b].append((a, s.td))
+        out = [math.nan] * len(self.names)
+        out[start] = 0.0
+        todo = [start]
+        while todo:  # a walk of the tree: each node once
+            n = todo.pop()
+            for m, td in adj[n]:
+                if math.isnan(out[m]):
+                    out[m] = out[n] + td
+                    todo.append(m)
+        return out
+
+    @property
+    def longest_delay(self) -> float:
+        """The largest one-way delay between two points of the tree (its diameter). [s]"""
+        d0 = self.delays_from(0)
+        far = max(range(len(d0)), key=d0.__getitem__)
+        return max(self.delays_from(far))
+
+
+def route_net(points: Sequence[tuple[str, str]], stretches: Sequence[Stretch]) -> RouteNet:
+    """The tree of a line's route.
+
+    Parameters
+    ----------
+    points : sequence of (str, str)
+        The (from, to) points of each stretch (:attr:`pinlib.model.design.Line.route`). [1]
+    stretches : sequence of Stretch
+        The electrical data of each stretch, index by index. [1]
+
+    Returns
+    -------
+    RouteNet
+    """
+    names: list[str] = []
+    for pair in points:
+        for p in pair:
+            if p not in names:
+                names.append(p)
+    secs = tuple((names.index(a), names.index(b), s)
+                 for (a, b), s in zip(points, stretches, strict=True))
+    net = RouteNet(tuple(names), secs, 0)
+    d = net.delays_from(0)
+    return RouteNet(net.names, secs, max(range(len(d)), key=d.__getitem__))
+
+
+def node_caps(net: RouteNet, pins: dict, extra_c: float) -> list[float]:
+    """Capacitance at each node: the pins there (``{ref: c_in}``), half of each stretch
+    without a delay at each of its ends, the extra capacitance at the far node. [F]"""
+    caps = [0.0] * len(net.names)
+    for ref, c in pins.items():
+        caps[net.node(ref)] += c
+    for a, b, s in net.sections:
+        if not s.td > 0:
+            caps[a] += 0.5 * s.c
+            caps[b] += 0.5 * s.c
+    caps[net.far] += extra_c
+    return caps
+
+
+class PointWaves:
+    """One edge at every node of a route, each :class:`EdgeWave` made when first asked
+    for (a line of many devices asks for few of them).
+
+    Attributes
+    ----------
+    edge : str
+        ``"rise"`` or ``"fall"``. [1]
+    t : numpy.ndarray
+        Sample times. [s]
+    v_from, v_to : float
+        Levels before and after the edge. [V]
+    """
+
+    def __init__(self, edge: str, t, unit, settled, v_from: float, v_to: float):
+        self.edge, self.t, self.v_from, self.v_to = edge, t, float(v_from), float(v_to)
+        self._unit, self._settled = unit, settled
+        self._made: dict[int, EdgeWave] = {}
+        self._extremes: tuple | None = None
+
+    def extremes(self) -> tuple[np.ndarray, np.ndarray]:
+        """At every node at once: the peak (the high level plus the overshoot) and the dip
+        (the undershoot below the low level, minus the low level), as
+        :class:`EdgeWave` computes them one node at a time (computed once). [V]"""
+        if self._extremes is None:
+            v = self.v_from + (self.v_to - self.v_from) * self._unit
+            hi, lo = max(self.v_from, self.v_to), min(self.v_from, self.v_to)
+            self._extremes = (self.v_to + np.asarray(wf.overshoot(v, hi)),
+                              np.asarray(wf.undershoot(v, lo)) - self.v_to)
+        return self._extremes
+
+    def edge_times(self, nodes) -> np.ndarray:
+        """The 10-90 % edge at the given nodes (NaN where it is not reached). [s]"""
+        nodes = list(nodes)
+        v = self.v_from + (self.v_to - self.v_from) * self._unit[nodes]
+        return np.asarray(wf.edge_time(self.t, v, self.v_to, v_initial=self.v_from),
+                          dtype=float)
+
+    def at(self, node: int) -> EdgeWave:
+        """The edge at one node. [1]"""
+        got = self._made.get(node)
+        if got is None:
+            v = self.v_from + (self.v_to - self.v_from) * self._unit[node]
+            hi, lo = max(self.v_from, self.v_to), min(self.v_from, self.v_to)
+            got = EdgeWave(self.edge, self.t.copy(), v, self.v_from, self.v_to,
+                           float(wf.edge_time(self.t, v, self.v_to, v_initial=self.v_from)),
+                           float(wf.overshoot(v, hi)), float(wf.undershoot(v, lo)),
+                           bool(self._settled[node]))
+            self._made[node] = got
+        return got
+
+
+def tree_edges(net: RouteNet, source: int, r_source: float, t_ramp: float,
+               caps: Sequence[float], v_from: float, v_to: float, *, distributed: bool,
+               edge: str) -> PointWaves:
+    """One edge of a ramp source behind a resistance at node ``source``, at every node.
+
+    Parameters
+    ----------
+    net : RouteNet
+        The route. [1]
+    source : int
+        The driver's node. [1]
+    r_source : float
+        Driver resistance plus series resistor. [Ω]
+    t_ramp : float
+        Source ramp, 0-100 %. [s]
+    caps : sequence of float
+        Capacitance at each node (:func:`node_caps`). [F]
+    v_from, v_to : float
+        Levels before and after the edge. [V]
+    distributed : bool
+        Solve the tree of lines (True) or one lumped capacitance, the same at every node
+        (False). [1]
+    edge : str
+        ``"rise"`` or ``"fall"``. [1]
+
+    Returns
+    -------
+    PointWaves
+
+    Notes
+    -----
+    The record runs for the ramp, 6 time constants of ``r_source`` into the whole
+    capacitance (:data:`_ROUTE_SETTLE_TAUS`) and (distributed) 60 times the tree's
+    longest one-way delay, and is not lengthened
+    (:data:`_ROUTE_EXTENSIONS`; each node says whether it ended within 1 % of the
+    swing).  The step is the tree solver's (:func:`pinlib.physics.waveform.choose_step`:
+    20 per shortest ramp or delay), at least 4,000 over the record, dividing the
+    shortest delay.  The tree is solved by
+    :func:`pinlib.physics.waveform.tree_response`; the circuit is linear, so the edge is
+    ``v_from + (v_to - v_from) u(t)`` with ``u`` its unit response.
+    """
+    key = ("pushline.tree_edge", tuple((a, b, s.z0, s.td, s.c) for a, b, s in net.sections),
+           source, r_source, t_ramp, tuple(caps), bool(distributed))
+    t, unit, settled = memo.remember(
+        key, lambda: _unit_tree(net, source, r_source, t_ramp, caps, distributed))
+    return PointWaves(edge, t, unit, settled, v_from, v_to)
+
+
+def _unit_tree(net: RouteNet, source: int, r_source: float, t_ramp: float,
+               caps: Sequence[float], distributed: bool):
+    """The time grid, the unit response (0 -> 1) at every node, and whether each settled."""
+    c_total = float(sum(caps)) + sum(s.c for _, _, s in net.sections if s.td > 0)
+    tau = r_source * c_total
+    delays = [s.td for _, _, s in net.sections if s.td > 0]
+    distributed = distributed and bool(delays)
+    longest = net.longest_delay if distributed else 0.0
+    t_end = max(t_ramp + _ROUTE_SETTLE_TAUS * tau + _SETTLE_DELAYS * longest, 1e-12)
+    sections = [(a, b, s.z0 if s.td > 0 else 1.0, s.td) for a, b, s in net.sections]
+    n_nodes = len(net.names)
+    for _ in range(_ROUTE_EXTENSIONS + 1):
+        # the tree solver's own step (20 per shortest ramp or delay; its error against
+        # ngspice is stated there), at least _MIN_STEPS over the record
+        dt = min(wf.choose_step(delays if distributed else [], t_ramp,
+                                tau=tau / _STEPS_PER_TAU * wf.STEPS_PER_EDGE),
+                 t_end / _MIN_STEPS)
+        dt = max(dt, t_end / _MAX_STEPS)
+        if distributed:  # the shortest delay in whole steps; the others interpolated
+            dt = min(delays) / math.ceil(min(delays) / dt * (1.0 - 1e-12))
+        t = _grid(t_end, dt)
+        if distributed:
+            unit = wf.tree_response(t, 1.0, t_ramp, r_source, sections, list(caps),
+                                    source=source, edge="rise").v
+        else:
+            one = wf.lumped_response(t, 1.0, t_ramp, r_source, c_total).v
+            unit = np.broadcast_to(one, (n_nodes, one.size))
+        settled = np.abs(unit[:, -1] - 1.0) <= _SETTLED
+        if settled.all():
+            break
+        t_end *= 3.0
+    return t, unit, settled

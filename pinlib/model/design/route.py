@@ -1,0 +1,114 @@
+"""A push-pull line's ``route``: stretches between named points (devices on the line and
+junctions) that must form one tree holding every device on the line exactly once."""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Sequence
+
+from pinlib.core import messages as M
+from pinlib.core.protocols import SIGNAL_FUNCTION
+from pinlib.core.worklimits import MAX_ROUTE_STRETCHES
+from pinlib.model.design.objects import Device, Section
+from pinlib.model.design.raw import RawTrace
+
+
+def on_line(device: Device, protocol: str, signal: str, n_lines: int) -> bool:
+    """Whether a device of a push-pull bus has a pin on one of its lines: on SPI a pin of
+    the signal's function; on GPIO the rule of :func:`pinlib.engines.pushpull.gpio_pin`
+    (the device's ``pin``, a pin named like the line, or a one-line bus's only gpio pin).
+    """
+    side = (device.side or "a") if device.is_bridge else None
+    if protocol == "spi":
+        return device.part.pin_for(SIGNAL_FUNCTION[signal], side) is not None
+    pins = device.part.sides[side].pins if side else device.part.pins
+    if device.pin is not None and (n_lines == 1 or device.pin == signal):
+        return True
+    if signal in pins:
+        return True
+    return n_lines == 1 and sum(p.function == "gpio" for p in pins.values()) == 1
+
+
+def _root(parent: dict, x: str) -> str:
+    """The representative of a point's joined set (a loop, not recursion: a route holds at
+    most :data:`MAX_ROUTE_STRETCHES` stretches)."""
+    while parent[x] != x:
+        parent[x] = parent[parent[x]]
+        x = parent[x]
+    return x
+
+
+def _check_tree(points: Sequence[tuple[str, str]], loc, err) -> None:
+    """The stretches join their points into one tree: none closes a loop (a stretch whose
+    two points are already joined, itself included), none is left apart."""
+    parent: dict[str, str] = {}
+    for i, (a, b) in enumerate(points):
+        for p in (a, b):
+            parent.setdefault(p, p)
+        ra, rb = _root(parent, a), _root(parent, b)
+        if ra == rb:
+            raise err(M.ROUTE_CLOSES_LOOP, loc + (i, "to"), value=f"{a} to {b}",
+                      hint="a route is a tree: drop this stretch or end it at a new junction")
+        parent[ra] = rb
+    first = _root(parent, points[0][0])
+    for i, (a, _b) in enumerate(points):
+        if _root(parent, a) != first:
+            raise err(M.ROUTE_NOT_CONNECTED, loc + (i, "from"), value=a,
+                      expected=f"a stretch from a point joined to {points[0][0]}")
+
+
+def route_of(rt: RawTrace, loc, devices: Sequence[Device], protocol: str, signal: str,
+             n_lines: int, sections: Callable, err) -> tuple[tuple[Section, ...],
+                                                             tuple[tuple[str, str], ...]]:
+    """The sections of a routed line and their (from, to) points, index by index.
+
+    Parameters
+    ----------
+    rt : RawTrace
+        The line's table, with its ``route``. [1]
+    loc : tuple
+        Its place in the file (``("bus", 0, "lines", "sclk")``). [1]
+    devices : sequence of Device
+        Every device of the bus. [1]
+    protocol, signal : str
+        The bus's protocol and the line's signal. [1]
+    n_lines : int
+        How many lines the bus routes (the GPIO pin rule). [1]
+    sections : callable
+        The resolver's ``sections(raw_stretch, loc)``. [1]
+    err : callable
+        The resolver's error builder, ``err(problem, loc, **kw)``. [1]
+
+    Raises
+    ------
+    DesignError
+        A route with another stretch form beside it, too many stretches, a loop, a part
+        left apart, a device of the bus not on the line at a point, or a device on the
+        line at no point; each naming the file, line and field.
+    """
+    route = rt.route
+    rloc = loc + ("route",)
+    if rt.sections or rt.length is not None or rt.geometry or rt.capacitance or rt.part:
+        raise err(M.ROUTE_OR_STRETCH, rloc)
+    if len(route) > MAX_ROUTE_STRETCHES:  # before building any of them
+        raise err(M.TOO_MANY_ROUTE_STRETCHES, rloc, value=f"{len(route):,} stretches",
+                  expected=f"at most {MAX_ROUTE_STRETCHES:,} stretches",
+                  hint="join stretches of one geometry between the same two devices")
+    points = tuple((s.from_, s.to) for s in route)
+    out = []
+    for i, s in enumerate(route):
+        out.extend(sections(s, rloc + (i,)))
+    _check_tree(points, rloc, err)
+    on = {d.ref for d in devices if on_line(d, protocol, signal, n_lines)}
+    of_bus = {d.ref for d in devices}
+    for i, pair in enumerate(points):
+        for key, p in zip(("from", "to"), pair, strict=True):
+            if p in of_bus and p not in on:
+                raise err(M.ROUTE_DEVICE_NOT_ON_LINE, rloc + (i, key), value=p,
+                          hint=f"it has no pin on {signal}; name a junction otherwise "
+                               "(a name that is no device of the bus)")
+    named = {p for pair in points for p in pair}
+    for d in devices:
+        if d.ref in on and d.ref not in named:
+            raise err(M.ROUTE_MISSES_DEVICE, rloc, value=d.ref,
+                      expected=f"a stretch from or to {d.ref}")
+    return tuple(out), points

@@ -1,0 +1,255 @@
+"""The time march shared by the line solvers: lossless lines between capacitive nodes.
+
+A network here is a set of nodes (each a capacitance to ground, possibly zero) joined
+by lossless lines; one node carries the source (a ramp behind a resistance).  The
+method of characteristics (Bergeron) turns each line end into a source ``2 v_inc``
+behind the line's impedance, ``v_inc`` being the wave that arrived there, launched
+one delay earlier at the other end.  Node j is then one companion node with
+conductance ``G = sum(1/Z) (+ 1/r_source)``, capacitance ``C`` and injected current
+``I = sum(2 v_inc / Z) (+ v_s / r_source)``; junction scattering follows from this
+nodal form by itself.
+
+The companion update is the exact solution of ``C dv/dt + G v = I`` for ``I`` linear
+between samples, with ``h = G dt / C``, ``a = exp(-h)``, ``p = (1 - a) / h``::
+
+    v[n+1] = a v[n] + w[n+1],   w[n+1] = (1 - p) I[n+1] / G + (p - a) I[n] / G
+
+Every current within a run of at most one (shortest) delay depends only on waves
+launched before the run, so a whole run is known before it is solved: ``w`` is formed
+for the run at once and the first-order recurrence is summed by doubling (after pass
+``j`` each sample holds ``sum a^i w[k - i]`` over ``2^(j+1)`` terms), a few numpy
+operations per run whatever the batch, stable for every ``a`` in [0, 1].
+
+Layout inside: ``(node or port, time, batch)``.
+"""
+
+from __future__ import annotations
+
+import math
+import warnings
+from typing import NamedTuple
+
+import numpy as np
+
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError, ValidityWarning
+
+__all__: list[str] = []
+
+# Largest relative change of a section delay by rounding it to the time grid before
+# the solvers warn.
+_DELAY_ROUNDING_WARN = 0.05
+# Relative tolerance on the spacing of a time grid given to the solvers.
+_GRID_RTOL = 1e-6
+# Longest run of time steps solved together, and a cap on the elements of a run's
+# arrays (ports x batch x run) so memory stays bounded for large batches.
+_MAX_BLOCK = 512
+_MAX_BLOCK_ELEMENTS = 4_000_000
+
+
+def _time_grid(t) -> tuple[np.ndarray, float]:
+    """The checked uniform time grid from 0 and its step ``dt``."""
+    t = np.asarray(t, dtype=float)
+    if t.ndim != 1 or t.size < 2 or t[0] != 0.0:
+        raise InputError(M.TIME_GRID_FORM,
+                         field="t", value=t[:3] if t.ndim == 1 else t.shape,
+                         expected="np.arange(n) * dt")
+    dt = (t[-1] - t[0]) / (t.size - 1)
+    if not dt > 0.0 or not np.allclose(np.diff(t), dt, rtol=_GRID_RTOL, atol=0.0):
+        raise InputError(M.TIME_GRID_NOT_UNIFORM, field="t",
+                         value=f"steps {np.diff(t).min():.3g} to {np.diff(t).max():.3g} s",
+                         expected="np.arange(n) * dt")
+    return t, dt
+
+
+def _source_samples(t: np.ndarray, vdd: np.ndarray, t_ramp: np.ndarray) -> np.ndarray:
+    """Thevenin source: 0 -> vdd linearly over t_ramp from t = 0; shape batch + (n,)."""
+    ramp = t_ramp[..., None]
+    has_ramp = ramp > 0.0
+    # Divide only where the ramp has a duration; a step (t_ramp = 0) is 0 at t = 0 and
+    # vdd after it.
+    fraction = np.where(has_ramp, np.clip(t / np.where(has_ramp, ramp, 1.0), 0.0, 1.0),
+                        (t > 0.0).astype(float))
+    return vdd[..., None] * fraction
+
+
+def _phi(x: np.ndarray) -> np.ndarray:
+    """(1 - exp(-x)) / x for x >= 0 with phi(0) = 1 and phi(inf) = 0."""
+    small = x < 1e-5
+    x_safe = np.where(small, 1.0, x)
+    x_small = np.where(small, x, 0.0)
+    return np.where(small, 1.0 - x_small / 2.0 + x_small * x_small / 6.0,
+                    -np.expm1(-x_safe) / x_safe)
+
+
+def _check_line(k: int, z0, td, dt: float, stacklevel: int) -> tuple[np.ndarray, float]:
+    """Section ``k``'s impedance (batchable) and delay in steps (0: no line).
+
+    A delay of a whole number of steps (to 1e-9) is that number; one of at least a
+    step is kept as a fraction of steps (the march interpolates between the two
+    samples around it); one of half a step to a step is rounded to one step, with a
+    :class:`ValidityWarning` (at ``stacklevel`` from here) when that changes it by more
+    than :data:`_DELAY_ROUNDING_WARN`; a shorter one is refused.
+    """
+    z0 = np.asarray(z0, dtype=float)
+    if not np.all(np.isfinite(z0) & (z0 > 0.0)):
+        raise InputError(M.Z0_NOT_POSITIVE,
+                         field=f"sections[{k}].z0", value=z0, expected="z0 > 0 [Ω]")
+    if np.ndim(td) != 0 or not (math.isfinite(float(td)) and float(td) >= 0.0):
+        raise InputError(M.SECTION_DELAY_FORM,
+                         field=f"sections[{k}].td", value=td, expected="td >= 0 [s]")
+    td = float(td)
+    exact = td / dt
+    steps = int(round(exact))
+    if td > 0.0 and steps == 0:
+        raise InputError(M.TIME_STEP_TOO_COARSE,
+                         field=f"sections[{k}].td", value=td,
+                         expected=f"td >= dt/2 = {dt / 2:.3g} s (or a finer grid)")
+    if abs(exact - steps) <= 1e-9 * exact or steps == 0:
+        return z0, float(steps)
+    if exact >= 1.0:
+        return z0, exact
+    if abs(steps * dt - td) > _DELAY_ROUNDING_WARN * td:
+        warnings.warn(M.DELAY_ROUNDED.format(k=k, td=f"{td:.4g}", steps=steps,
+                                             dt=f"{dt:.4g}", rounded=f"{steps * dt:.4g}"),
+                      ValidityWarning, stacklevel=stacklevel + 1)
+    return z0, float(steps)
+
+
+def _non_negative(name: str, a: np.ndarray, unit: str) -> None:
+    """Refuse a value that is not finite and >= 0."""
+    if not np.all(np.isfinite(a) & (a >= 0.0)):
+        raise InputError(M.MUST_BE_FINITE_NON_NEGATIVE, field=name,
+                         value=a, expected=f"values >= 0 {unit}")
+
+
+class Network(NamedTuple):
+    """Lossless lines between nodes, as companion models; arrays over the batch ``B``.
+
+    Each line with a delay has two ports (its two ends), ``2k`` and ``2k + 1``.
+    """
+
+    port_node: np.ndarray     # (P,) node of each port
+    port_partner: np.ndarray  # (P,) the port at the line's other end
+    port_delay: np.ndarray    # (P,) the line's delay in whole steps (rounded down)
+    port_frac: np.ndarray     # (P,) and the fraction of a step beyond them
+    port_g: np.ndarray        # (P, B) 1 / Z of the port's line
+    incidence: np.ndarray     # (nodes, P): 1 where the port is at the node
+    source: int               # the node the source attaches to
+    g_source: np.ndarray      # (B,) source conductance; 0 for an ideal source
+    forced: np.ndarray        # (B,) ideal source: the source node follows it exactly
+    a: np.ndarray             # (nodes, B) exp(-G dt / C)
+    c_now: np.ndarray         # (nodes, B) weight of I[n+1] in v[n+1]
+    c_prev: np.ndarray        # (nodes, B) weight of I[n] in v[n+1]
+
+
+def network(n_nodes: int, lines, caps: np.ndarray, r_source: np.ndarray, source: int,
+            dt: float) -> Network:
+    """The companion network.
+
+    ``lines`` holds ``(node_a, node_b, z0 (B,), delay in steps)`` for each line with a
+    delay of at least one step; ``caps`` is ``(n_nodes, B)``; ``r_source`` ``(B,)``.
+    """
+    n_b = r_source.size
+    ends = [(a, b) for a, b, _, _ in lines]
+    port_node = np.array([n for pair in ends for n in pair], dtype=int)
+    port_partner = np.arange(port_node.size) ^ 1
+    delays = np.repeat(np.array([d for *_, d in lines], dtype=float), 2)
+    port_delay = np.floor(delays).astype(int)
+    port_frac = delays - port_delay
+    port_g = np.repeat(np.array([1.0 / z for _, _, z, _ in lines]).reshape(-1, n_b), 2,
+                       axis=0)
+    incidence = np.zeros((n_nodes, port_node.size))
+    incidence[port_node, np.arange(port_node.size)] = 1.0
+
+    forced = r_source == 0.0  # ideal source: the source node follows the source exactly
+    g_source = np.where(forced, 0.0, 1.0 / np.where(forced, 1.0, r_source))
+    g_node = np.zeros((n_nodes, n_b))
+    for p, node in enumerate(port_node):
+        g_node[node] += port_g[p]
+    g_node[source] += g_source
+    # A node with no conductance exists only as a forced source node with no line;
+    # give it a placeholder so no division by zero is formed (its value is overwritten).
+    g_node = np.where(g_node > 0.0, g_node, 1.0)
+
+    has_cap = caps > 0.0
+    # h = G dt / C, infinite without capacitance (then a = 0, p = 0: v = I / G).
+    h = np.where(has_cap, g_node * dt / np.where(has_cap, caps, 1.0), np.inf)
+    a = np.exp(-h)
+    p = _phi(h)
+    return Network(port_node, port_partner, port_delay, port_frac, port_g, incidence, source,
+                   g_source, forced, a, (1.0 - p) / g_node, (p - a) / g_node)
+
+
+def _run_length(net: Network, n_t: int) -> int:
+    """Steps solved together: at most the shortest delay, and bounded in memory."""
+    n_rows = max(net.a.shape[0], net.port_node.size) * net.a.shape[1]
+    cap = max(1, _MAX_BLOCK_ELEMENTS // max(1, n_rows))
+    shortest = int(net.port_delay.min()) if net.port_delay.size else _MAX_BLOCK
+    return max(1, min(shortest, _MAX_BLOCK, cap, n_t - 1))
+
+
+def _powers(a: np.ndarray, block: int) -> tuple[list[np.ndarray], np.ndarray]:
+    """``a^(2^j)`` for the doubling passes, and ``a^(k+1)`` for k < block (node, k, B)."""
+    doubling, x, span = [], a, 1
+    while span < block:
+        doubling.append(x[:, None, :])
+        x = x * x
+        span *= 2
+    return doubling, a[:, None, :] ** np.arange(1, block + 1)[None, :, None]
+
+
+def march(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
+    """Every node's voltage at every step, ``(nodes, n_t, B)``; ``v_src`` is ``(n_t, B)``."""
+    n_nodes, n_b = net.a.shape
+    n_ports, src = net.port_node.size, net.source
+    block = _run_length(net, n_t)
+    doubling, a_pow = _powers(net.a, block)
+    c_now, c_prev = net.c_now[:, None, :], net.c_prev[:, None, :]
+    two_g = 2.0 * net.port_g[:, None, :]
+    forced = net.forced[None, :]
+    # waves launched into each port's line, kept for one longest delay plus one run
+    ring = (int(net.port_delay.max()) + 1 if n_ports else 0) + block
+    frac = net.port_frac[:, None, None] if np.any(net.port_frac > 0.0) else None
+    launched = np.zeros((n_ports, ring, n_b))
+    steps = np.arange(block)
+    back = (net.port_delay[:, None] - steps[None, :])  # (P, block): q - delay + k = q - back
+    partner = net.port_partner[:, None]
+
+    volts = np.empty((n_nodes, n_t, n_b))
+    v_last = np.zeros((n_nodes, n_b))
+    i_last = np.zeros((n_nodes, n_b))
+    i_last[src] = net.g_source * v_src[0]
+    v_last[src] = np.where(net.forced, v_src[0], 0.0)
+    volts[:, 0] = v_last
+    n = 1
+    while n < n_t:
+        m = min(block, n_t - n)
+        here = slice(n, n + m)
+        inc = launched[partner, (n - back[:, :m]) % ring]          # (P, m, B)
+        if frac is not None:  # a delay between two samples: linear interpolation
+            inc += frac * (launched[partner, (n - 1 - back[:, :m]) % ring] - inc)
+        if n_ports:
+            cur = np.matmul(net.incidence, (two_g * inc).reshape(n_ports, -1))
+            cur = cur.reshape(n_nodes, m, n_b)
+        else:
+            cur = np.zeros((n_nodes, m, n_b))
+        cur[src] += net.g_source * v_src[here]
+        w = c_now * cur
+        w[:, 0] += net.c_prev * i_last
+        w[:, 1:] += c_prev * cur[:, :-1]
+        span = 1
+        for power in doubling:
+            if span >= m:
+                break
+            w[:, span:] += power * w[:, :-span]
+            span *= 2
+        w += a_pow[:, :m] * v_last[:, None, :]
+        w[src] = np.where(forced, v_src[here], w[src])
+        volts[:, here] = w
+        if n_ports:
+            launched[:, (n + steps[:m]) % ring] = w[net.port_node] - inc
+        i_last = cur[:, -1]
+        v_last = w[:, -1]
+        n += m
+    return volts

@@ -1,0 +1,303 @@
+"""Routed push-pull lines (``lines.<signal>.route``): loading and refusals.
+
+The designs are invented test data."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import pytest
+
+from pinlib.cli import main
+from pinlib.core import messages as M
+from pinlib.core.errors import DesignError
+from pinlib.engines.dispatch import check_design
+from pinlib.model.design import load_design
+
+DATA = Path(__file__).parent / "data"
+ROUTE_DESIGN = DATA / "spi-route.toml"
+
+HEAD = """\
+format = "pinlib.design/1"
+title = "route test (invented)"
+
+[board.geometry.g]
+kind = "microstrip"
+width = "0.2 mm"
+height = "0.18 mm"
+er = 4.2
+
+[[bus]]
+id = "s"
+protocol = "spi"
+clock = "10 MHz"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "nor-flash-spi" },
+  { ref = "U3", part = "nor-flash-spi" },
+]
+"""
+
+
+def _stretch(a, b, length="2 cm"):
+    return f'{{ from = "{a}", to = "{b}", length = "{length}", geometry = "g" }}'
+
+
+def _design(tmp_path, *stretches, sig="sclk"):
+    text = HEAD + f"lines.{sig} = {{ route = [\n  " + ",\n  ".join(stretches) + "\n] }\n"
+    if sig != "sclk":
+        text += 'lines.sclk = { length = "3 cm", geometry = "g" }\n'
+    path = tmp_path / "d.toml"
+    path.write_text(text, encoding="utf-8")
+    return path
+
+
+def test_route_design_loads_with_points_aligned_to_sections():
+    bus = load_design(ROUTE_DESIGN).buses[0]
+    sclk = bus.lines["sclk"]
+    assert sclk.route == (("U1", "T1"), ("T1", "U2"), ("T1", "U3"), ("U3", "U4"))
+    assert len(sclk.sections) == 4
+    # invented test data: the file's lengths, 2 + 1 + 13 + 3 cm
+    assert sclk.length == pytest.approx(0.19)
+    assert bus.lines["cs"].route == ()
+
+
+def test_daisy_chain_stub_and_star_all_load(tmp_path):
+    chain = _design(tmp_path, _stretch("U1", "U2"), _stretch("U2", "U3"))
+    assert load_design(chain).buses[0].lines["sclk"].route == (("U1", "U2"), ("U2", "U3"))
+    star = _design(tmp_path, _stretch("U1", "S"), _stretch("S", "U2"), _stretch("S", "U3"),
+                   _stretch("S", "J9"))  # an open stub to a junction is allowed
+    assert len(load_design(star).buses[0].lines["sclk"].route) == 4
+
+
+@pytest.mark.parametrize(("stretches", "problem", "field", "line"), [
+    ((_stretch("U1", "U2"), _stretch("U2", "U3"), _stretch("U3", "U1")),
+     M.ROUTE_CLOSES_LOOP, "bus[0].lines.sclk.route[2].to", 23),
+    ((_stretch("U1", "U1"), _stretch("U1", "U2"), _stretch("U2", "U3")),
+     M.ROUTE_CLOSES_LOOP, "bus[0].lines.sclk.route[0].to", 21),
+    ((_stretch("U1", "U2"), _stretch("U3", "J1")),
+     M.ROUTE_NOT_CONNECTED, "bus[0].lines.sclk.route[1].from", 22),
+    ((_stretch("U1", "U2"), _stretch("U2", "J1")),
+     M.ROUTE_MISSES_DEVICE, "bus[0].lines.sclk.route", 20),
+])
+def test_refusals_name_file_line_and_field(tmp_path, stretches, problem, field, line):
+    path = _design(tmp_path, *stretches)
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    err = info.value
+    assert err.problem == problem
+    assert err.field == field
+    assert err.file == str(path)
+    assert err.line == line
+
+
+def test_missing_device_is_named(tmp_path):
+    with pytest.raises(DesignError) as info:
+        load_design(_design(tmp_path, _stretch("U1", "U2"), _stretch("U2", "J1")))
+    assert "U3" in str(info.value)
+
+
+def test_route_and_a_stretch_together_are_refused(tmp_path):
+    path = tmp_path / "d.toml"
+    path.write_text(HEAD + 'lines.sclk = { length = "3 cm", route = [' + _stretch("U1", "U2")
+                    + ", " + _stretch("U2", "U3") + "] }\n", encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    assert info.value.problem == M.ROUTE_OR_STRETCH
+    assert info.value.field == "bus[0].lines.sclk.route"
+
+
+def test_a_stretch_of_a_route_is_checked_like_any_stretch(tmp_path):
+    bad = '{ from = "U2", to = "U3", length = "2 cm", geometry = "nope" }'
+    with pytest.raises(DesignError) as info:
+        load_design(_design(tmp_path, _stretch("U1", "U2"), bad))
+    assert info.value.problem == M.UNKNOWN_GEOMETRY
+    assert info.value.field == "bus[0].lines.sclk.route[1].geometry"
+
+
+def test_unknown_key_in_a_route_stretch_is_refused(tmp_path):
+    bad = '{ from = "U2", to = "U3", length = "2 cm", geometry = "g", stub = "1 cm" }'
+    with pytest.raises(DesignError) as info:
+        load_design(_design(tmp_path, _stretch("U1", "U2"), bad))
+    assert "route" in info.value.field and "stub" in info.value.field
+
+
+# ---------------------------------------------------------------- the engine on routes
+
+def _check(text: str, tmp_path):
+    path = tmp_path / "d.toml"
+    path.write_text(text, encoding="utf-8")
+    design = load_design(path)
+    return design, check_design(design).buses[0]
+
+
+def _by_subject(line, check_id):
+    return {c.subject: c for c in line.checks if c.id == check_id}
+
+
+def _line(bus, signal):
+    return next(x for x in bus.lines if x.signal == signal)
+
+
+def test_daisy_chain_gives_the_far_device_the_later_and_slower_edge(tmp_path):
+    # invented: a capacitive trace (Z0 = 40 ps/cm / 10 pF/cm = 4 Ω) where the driver's
+    # RC sets the edge, U2 at 2 cm and U3 at 22 cm
+    _, bus = _check(HEAD + """lines.sclk = { route = [
+  { from = "U1", to = "U2", length = "2 cm", capacitance = "10 pF/cm", delay = "40 ps/cm" },
+  { from = "U2", to = "U3", length = "20 cm", capacitance = "10 pF/cm", delay = "40 ps/cm" },
+] }
+""", tmp_path)
+    edges = _by_subject(_line(bus, "sclk"), "edge-time")
+    assert set(edges) == {"U2", "U3"}
+    # derived from an RC ladder: the far end of a charged line lags and is no faster
+    assert edges["U3"].value > edges["U2"].value
+    assert "U3" in edges["U3"].message and "U2" in edges["U2"].message
+
+
+def _stub_design(stub: str) -> str:
+    return HEAD + f"""lines.sclk = {{ route = [
+  {{ from = "U1", to = "T", length = "3 cm", geometry = "g" }},
+  {{ from = "T", to = "U2", length = "{stub}", geometry = "g" }},
+  {{ from = "T", to = "U3", length = "3 cm", geometry = "g" }},
+] }}
+"""
+
+
+def test_a_long_stub_rings_worse_at_the_far_device_than_a_short_one(tmp_path):
+    _, short = _check(_stub_design("0.1 cm"), tmp_path)
+    _, long_ = _check(_stub_design("12 cm"), tmp_path)
+    # derived from reflections: the open stub's echo returns to the junction and on to
+    # U3 (invented geometry; the numbers come from the tree solver)
+    for check_id in ("overshoot", "undershoot"):
+        a = _by_subject(_line(short, "sclk"), check_id)["U3"].value
+        b = _by_subject(_line(long_, "sclk"), check_id)["U3"].value
+        assert b > 1.5 * a, check_id
+
+
+FLIGHT_HEAD = HEAD.replace('part = "mcu-3v3", role', 'part = "fpga-io-3v3", role')
+FLIGHT_ROUTE = """lines.{sig} = {{ route = [
+  {{ from = "U1", to = "U2", length = "2 cm", geometry = "g" }},
+  {{ from = "U2", to = "U3", length = "40 cm", geometry = "g" }},
+] }}
+"""
+
+
+def _flight_design() -> str:
+    return FLIGHT_HEAD + "".join(FLIGHT_ROUTE.format(sig=s) for s in ("sclk", "copi", "cipo"))
+
+
+def test_each_peripheral_has_its_own_flights_in_the_budget(tmp_path):
+    design, bus = _check(_flight_design(), tmp_path)
+    sa = bus.workings
+    flights = {p.ref: p for p in sa.peripherals}
+    # derived from the route: U3 sits 40 cm (about 2.8 ns) beyond U2 on every line
+    assert flights["U3"].sclk["rise"].late > flights["U2"].sclk["rise"].late + 1e-9
+    assert flights["U3"].copi.late > flights["U2"].copi.late + 1e-9
+    # CIPO: each drives from its own point; U2 mid-line also charges the 40 cm stub to
+    # U3, whose echo comes back 5.6 ns later (derived from the route), so its flight is
+    # not the shorter one: each is its own case's
+    la = sa.lines["cipo"]
+    ctl = la.receivers[0]
+    for ref in ("U2", "U3"):
+        assert flights[ref].cipo == la.cases[ref].flight_both(ctl)
+    assert flights["U2"].cipo != flights["U3"].cipo
+    # the budget's terms carry each device's own flight
+    setup = {c.subject: c for c in bus.checks if c.id == "copi-setup"}
+    assert setup["U3"].details["copi_late"] == flights["U3"].copi.late
+    assert setup["U2"].details["copi_late"] == flights["U2"].copi.late
+    for ref in ("U2", "U3"):
+        # derived from the budget: T/2 + SCLK early - t_valid - COPI late, mode 0 samples
+        # on the rise; the controller's t_valid 7 ns is the fpga-io-3v3 class's
+        want = 0.5 / 10e6 + flights[ref].sclk["rise"].early - 7e-9 - flights[ref].copi.late
+        assert setup[ref].value == pytest.approx(want, rel=1e-12)
+
+
+def test_max_clock_follows_the_worst_device_and_names_it(tmp_path):
+    _, bus = _check(_flight_design(), tmp_path)
+    limits = bus.workings.clock_limits()
+    by = bus.figures["max_clock_limited_by"].value
+    assert by == limits[0][1]
+    # derived from the route: U2, 2 cm from the controller, drives CIPO into the 40 cm
+    # stub to U3 as well, whose echo holds its edge at the controller back by 5.6 ns; U3's
+    # own edge arrives whole.  The worst device is the near one, and the result says so.
+    assert by == "cipo-setup U2"
+    u3 = min(f for f, name, _ in limits if name.endswith(" U3"))
+    assert bus.figures["max_clock"].value == pytest.approx(limits[0][0])
+    assert limits[0][0] < u3
+    # every device at the far end (the simple form) cannot tell them apart
+    simple = FLIGHT_HEAD + "".join(f'lines.{s} = {{ length = "42 cm", geometry = "g" }}\n'
+                                   for s in ("sclk", "copi", "cipo"))
+    _, far = _check(simple, tmp_path)
+    got = {name.split()[-1]: f for f, name, _ in far.workings.clock_limits()
+           if name.startswith("cipo-setup")}
+    assert got["U2"] == pytest.approx(got["U3"], rel=1e-9)
+
+
+def test_cipo_each_peripheral_drives_from_its_own_point(tmp_path):
+    _, bus = _check(_flight_design(), tmp_path)
+    la = bus.workings.lines["cipo"]
+    assert set(la.cases) == {"U2", "U3"}
+    ctl = la.receivers[0]
+    assert [r.ref for r in la.receivers] == ["U1"]  # only the controller receives CIPO
+    near, far = la.cases["U2"].flight(ctl, "rise"), la.cases["U3"].flight(ctl, "rise")
+    # derived from the route: U3's edge starts 40 cm (about 2.8 ns) farther away, so the
+    # controller's VIL is reached later; U2's edge is held back by the stub it charges
+    assert far.early > near.early + 1e-9
+
+
+def test_a_route_with_every_device_at_one_point_matches_the_simple_form(tmp_path):
+    # the simple form puts every pin at the far end: a route whose devices share the far
+    # point through zero-length stretches is the same circuit (two solvers: the chain
+    # and the tree; derived from the same lossless-line model)
+    simple = HEAD + 'lines.sclk = { length = "15 cm", geometry = "g" }\n'
+    routed = HEAD + """lines.sclk = { route = [
+  { from = "U1", to = "E", length = "15 cm", geometry = "g" },
+  { from = "E", to = "U2", length = "0 cm", capacitance = "1 pF/cm" },
+  { from = "E", to = "U3", length = "0 cm", capacitance = "1 pF/cm" },
+] }
+"""
+    _, a = _check(simple, tmp_path)
+    _, b = _check(routed, tmp_path)
+    fa, fb = _line(a, "sclk").figures, _line(b, "sclk").figures
+    for name in ("edge_rise_time", "edge_fall_time", "trace_delay", "load_capacitance"):
+        assert fb[name].value == pytest.approx(fa[name].value, rel=2e-3), name
+    assert fb["overshoot"].value == pytest.approx(fa["overshoot"].value, abs=0.01)
+
+
+def test_route_test_design_checks_and_reports(tmp_path, capsys):
+    code = main(["check", str(ROUTE_DESIGN), "--detail"])
+    out = capsys.readouterr().out
+    assert code in (0, 1)
+    assert "U4" in out and "edge" in out.lower()
+    html = tmp_path / "r.html"
+    assert main(["report", str(ROUTE_DESIGN), "--html", str(html)]) == code  # as check
+    text = html.read_text(encoding="utf-8")
+    assert "U1 ─2 cm─ T1" in text  # the route drawn as text
+
+
+def test_json_names_each_receiver(capsys):
+    main(["check", str(ROUTE_DESIGN), "--json"])
+    data = json.loads(capsys.readouterr().out)
+    bus = data["buses"][0]
+    sclk = next(x for x in bus["lines"] if x["signal"] == "sclk")
+    subjects = {c.get("subject") for c in sclk["checks"] if c["id"] == "edge-time"}
+    assert subjects == {"U2", "U3", "U4"}
+
+
+def test_waveform_chart_data_holds_every_receiver_of_a_route():
+    from pinlib.present import plotdata
+
+    design = load_design(ROUTE_DESIGN)
+    bus = design.buses[0]
+    result = check_design(design).buses[0]
+    w = plotdata.waveform_data(bus, design, "copi", analysis=result)
+    assert set(w.traces) == {f"{e} at {r}" for e in ("rise", "fall") for r in ("U2", "U3", "U4")}
+    la = result.workings.lines["copi"]
+    # the engine's own overshoot at each point (no engine runs again)
+    for r in ("U2", "U3", "U4"):
+        assert w.overshoot[f"rise at {r}"] == la.cases["U1"].wave_at(r, "rise").overshoot
+    one = plotdata.waveform_data(bus, design, "copi", analysis=result, receiver="U3")
+    assert set(one.traces) == {"rise, no series R", "fall, no series R"}
+    assert one.receivers == [next(x.label for x in la.receivers if x.ref == "U3")]
