@@ -17,9 +17,8 @@ from pathlib import Path
 
 from tests.bench.common import Result, format_ratio, machine
 
-MODULES = ["waveform", "candidates", "montecarlo", "opendrain", "library", "cli", "report",
-           "design", "many",
-           "scaling",
+MODULES = ["waveform", "tree", "candidates", "montecarlo", "opendrain", "library", "cli",
+           "report", "design", "many", "scaling",
            "widgets",
            "browser"]
 README = Path(__file__).resolve().parents[2] / "README.md"

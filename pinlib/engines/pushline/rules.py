@@ -46,12 +46,14 @@ _RINGING_SOURCE = ("an input that re-crosses its threshold after the first cross
 #: Pin function of each SPI signal.
 SIGNAL_FUNCTION = dict(protocol("spi").signals)
 
-# Time grid of the waveform solvers.
-_STEPS_PER_DELAY = 50      # steps per shortest section delay (distributed model)
-_STEPS_PER_RAMP = 50       # steps per source ramp
-_STEPS_PER_TAU = 50        # steps per driver time constant
-_MIN_STEPS = 4000          # steps over the whole record, at least
-_MAX_STEPS = 400_000       # and at most, where the shortest section delay allows it
+# Time grid of the waveform solvers: pinlib.physics.waveform.choose_step's step, made
+# coarser only where a record would need more steps than this (and the shortest
+# section delay allows it).
+# The routed solver's grid (routes.py): steps per driver time constant, and at least
+# this many steps over the record.
+_STEPS_PER_TAU = 50
+_MIN_STEPS = 4000
+_MAX_STEPS = 400_000
 #: Hard limit on the steps of one waveform record.  The step must divide the shortest
 #: section delay, so a line whose shortest delay is tiny against the record (a long cable
 #: beside a stub of a trace) would need more than ``_MAX_STEPS``; past this many the

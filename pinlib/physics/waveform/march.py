@@ -16,9 +16,10 @@ between samples, with ``h = G dt / C``, ``a = exp(-h)``, ``p = (1 - a) / h``::
 
 Every current within a run of at most one (shortest) delay depends only on waves
 launched before the run, so a whole run is known before it is solved: ``w`` is formed
-for the run at once and the first-order recurrence is summed by doubling (after pass
-``j`` each sample holds ``sum a^i w[k - i]`` over ``2^(j+1)`` terms), a few numpy
-operations per run whatever the batch, stable for every ``a`` in [0, 1].
+for the run at once and the first-order recurrence is summed for the run by doubling
+(after pass ``j`` each sample holds ``sum a^i w[k - i]`` over ``2^(j+1)`` terms): a few numpy
+operations per run whatever the batch, stable for every ``a`` in [0, 1].  A delay that
+is not a whole number of steps reads the launched wave by linear interpolation.
 
 Layout inside: ``(node or port, time, batch)``.
 """
@@ -45,6 +46,9 @@ _GRID_RTOL = 1e-6
 # arrays (ports x batch x run) so memory stays bounded for large batches.
 _MAX_BLOCK = 512
 _MAX_BLOCK_ELEMENTS = 4_000_000
+# The launched waves are kept for the whole record up to this many elements (ports x
+# steps x batch), else in a ring buffer of one longest delay plus one run.
+_MAX_BUFFER_ELEMENTS = 2_000_000
 
 
 def _time_grid(t) -> tuple[np.ndarray, float]:
@@ -189,14 +193,27 @@ def _run_length(net: Network, n_t: int) -> int:
     return max(1, min(shortest, _MAX_BLOCK, cap, n_t - 1))
 
 
-def _powers(a: np.ndarray, block: int) -> tuple[list[np.ndarray], np.ndarray]:
-    """``a^(2^j)`` for the doubling passes, and ``a^(k+1)`` for k < block (node, k, B)."""
-    doubling, x, span = [], a, 1
-    while span < block:
-        doubling.append(x[:, None, :])
-        x = x * x
-        span *= 2
-    return doubling, a[:, None, :] ** np.arange(1, block + 1)[None, :, None]
+class _Scan:
+    """``v[k] = a v[k-1] + w[k]`` over a run from ``v_last``, summed by doubling."""
+
+    def __init__(self, a: np.ndarray, block: int):
+        self.a_pow = a[:, None, :] ** np.arange(1, block + 1)[None, :, None]  # (N, k, B)
+        self.doubling = []
+        x, span = a, 1
+        while span < block:
+            self.doubling.append(x[:, None, :])
+            x = x * x
+            span *= 2
+
+    def __call__(self, w: np.ndarray, v_last: np.ndarray) -> np.ndarray:
+        m, span = w.shape[1], 1
+        for power in self.doubling:
+            if span >= m:
+                break
+            w[:, span:] += power * w[:, :-span]
+            span *= 2
+        w += self.a_pow[:, :m] * v_last[:, None, :]
+        return w
 
 
 def march(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
@@ -204,17 +221,20 @@ def march(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
     n_nodes, n_b = net.a.shape
     n_ports, src = net.port_node.size, net.source
     block = _run_length(net, n_t)
-    doubling, a_pow = _powers(net.a, block)
+    scan = _Scan(net.a, block)
     c_now, c_prev = net.c_now[:, None, :], net.c_prev[:, None, :]
     two_g = 2.0 * net.port_g[:, None, :]
     forced = net.forced[None, :]
-    # waves launched into each port's line, kept for one longest delay plus one run
-    ring = (int(net.port_delay.max()) + 1 if n_ports else 0) + block
-    frac = net.port_frac[:, None, None] if np.any(net.port_frac > 0.0) else None
-    launched = np.zeros((n_ports, ring, n_b))
-    steps = np.arange(block)
-    back = (net.port_delay[:, None] - steps[None, :])  # (P, block): q - delay + k = q - back
+    # Waves launched into each port's line: step s at index pad + s, in a buffer as long
+    # as the record when it fits, else a ring of one longest delay plus one run.
+    pad = (int(net.port_delay.max()) + 1) if n_ports else 1
+    full = n_ports * (pad + n_t) * n_b <= _MAX_BUFFER_ELEMENTS
+    size = pad + n_t if full else pad + block
+    launched = np.zeros((n_ports, size, n_b))
+    # samples from one before the delayed start of a run to its end: (P, block + 1)
+    reach = pad - 1 - net.port_delay[:, None] + np.arange(block + 1)[None, :]
     partner = net.port_partner[:, None]
+    frac = net.port_frac[:, None, None] if np.any(net.port_frac > 0.0) else None
 
     volts = np.empty((n_nodes, n_t, n_b))
     v_last = np.zeros((n_nodes, n_b))
@@ -226,9 +246,11 @@ def march(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
     while n < n_t:
         m = min(block, n_t - n)
         here = slice(n, n + m)
-        inc = launched[partner, (n - back[:, :m]) % ring]          # (P, m, B)
+        where = reach[:, :m + 1] + n
+        got = launched[partner, where if full else where % size]    # (P, m + 1, B)
+        inc = got[:, 1:]
         if frac is not None:  # a delay between two samples: linear interpolation
-            inc += frac * (launched[partner, (n - 1 - back[:, :m]) % ring] - inc)
+            inc = inc + frac * (got[:, :-1] - inc)
         if n_ports:
             cur = np.matmul(net.incidence, (two_g * inc).reshape(n_ports, -1))
             cur = cur.reshape(n_nodes, m, n_b)
@@ -238,17 +260,15 @@ def march(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
         w = c_now * cur
         w[:, 0] += net.c_prev * i_last
         w[:, 1:] += c_prev * cur[:, :-1]
-        span = 1
-        for power in doubling:
-            if span >= m:
-                break
-            w[:, span:] += power * w[:, :-span]
-            span *= 2
-        w += a_pow[:, :m] * v_last[:, None, :]
+        w = scan(w, v_last)
         w[src] = np.where(forced, v_src[here], w[src])
         volts[:, here] = w
         if n_ports:
-            launched[:, (n + steps[:m]) % ring] = w[net.port_node] - inc
+            out = w[net.port_node] - inc
+            if full:
+                launched[:, pad + n:pad + n + m] = out
+            else:
+                launched[:, (pad + n + np.arange(m)) % size] = out
         i_last = cur[:, -1]
         v_last = w[:, -1]
         n += m

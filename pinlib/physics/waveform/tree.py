@@ -27,8 +27,8 @@ linear interpolation between them; one shorter than a step is rounded to one ste
 :class:`ValidityWarning` above 5 % of the delay).
 
 ``choose_step(delays, t_ramp, *, tau=0.0, steps=STEPS_PER_EDGE) -> dt``: 20 steps per
-shortest ramp or delay, dividing the shortest delay (the grid is then
-``np.arange(n) * dt``).
+shortest ramp, delay or receiver time constant, dividing the shortest delay (the grid
+is then ``np.arange(n) * dt``).
 """
 
 from __future__ import annotations
@@ -157,7 +157,7 @@ def _tree(t, vdd, t_ramp, r_source, sections, node_caps, source, edge, *,
 
 
 def choose_step(delays, t_ramp, *, tau=0.0, steps=STEPS_PER_EDGE) -> float:
-    """A time step for :func:`tree_response`: ``steps`` per shortest ramp or delay.
+    """A time step for :func:`tree_response`: ``steps`` per shortest ramp, delay or tau.
 
     Parameters
     ----------
@@ -166,23 +166,28 @@ def choose_step(delays, t_ramp, *, tau=0.0, steps=STEPS_PER_EDGE) -> float:
     t_ramp : float
         Source ramp, 0-100 %. [s]
     tau : float, optional
-        A time constant to resolve as well, used only when there is neither a ramp nor
-        a delay (a step into a lumped load). [s]
+        The shortest time constant of a receiver's capacitance with the lines at its
+        node (``C / sum(1/Z)``), when its corner is to be sampled as finely as the
+        ramp; 0 to leave it out. [s]
     steps : float, optional
-        Steps per shortest ramp or delay. [1]
+        Steps per shortest ramp, delay or time constant. [1]
 
     Returns
     -------
     float
-        ``min(t_ramp, delays) / steps``, made smaller so that it divides the shortest
-        delay exactly (the others fall between samples and are interpolated). [s]
+        ``min(t_ramp, delays, tau) / steps`` (those above 0), made smaller so that it
+        divides the shortest delay exactly (the others fall between samples and are
+        interpolated). [s]
 
     Notes
     -----
-    The solver's companion nodes are exact for a current linear between samples,
-    so a node's RC time constant needs no resolution of its own; the step has to
-    resolve the ramp and the shortest delay and sample the edge finely enough for its
-    10-90 % time.
+    The solver's companion nodes are exact for a current linear between samples, so
+    a time constant needs no step of its own for the solution; the step resolves the
+    ramp's corners and the delays.  What a coarse step still costs is the reading of
+    the edge: crossings are interpolated linearly between samples, which misses by
+    about ``dt^2 / (8 tau)`` on an RC corner of time constant ``tau``; ``tau`` bounds
+    that.  Over the ngspice case set of ``tests/test_tree_spice.py`` 20 steps per ramp
+    or delay kept every edge within 0.02 % and every overshoot within 0.0003 VDD.
 
     Examples
     --------
@@ -190,10 +195,8 @@ def choose_step(delays, t_ramp, *, tau=0.0, steps=STEPS_PER_EDGE) -> float:
     15.0
     """
     positive = [float(d) for d in delays if float(d) > 0.0]
-    spans = positive + ([float(t_ramp)] if t_ramp > 0.0 else [])
-    if not spans:
-        spans = [float(tau)] if tau > 0.0 else [1e-12 * steps]
-    dt = min(spans) / steps
+    spans = positive + [float(x) for x in (t_ramp, tau) if x > 0.0]
+    dt = (min(spans) if spans else 1e-12 * steps) / steps
     if positive:
         shortest = min(positive)
         dt = shortest / math.ceil(shortest / dt * (1.0 - 1e-12))
