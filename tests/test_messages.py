@@ -1053,6 +1053,60 @@ def _(env):
     return _fails(lambda e: e.design(_device("eeprom-i2c", ', side = "a"')), env)
 
 
+def _coupling(victim='"b.scl"', aggressor='"s.sclk"', extra=""):
+    return (I2C_BUS + SPI_BUS + f"""
+[[coupling]]
+victim = {victim}
+aggressor = {aggressor}
+spacing = "0.3 mm"
+parallel_length = "4 cm"
+geometry = "g"
+{extra}""")
+
+
+@case("DID_YOU_MEAN", M.DID_YOU_MEAN.format(name="b"))
+def _(env):
+    err = _fails(lambda e: e.design(_coupling(victim='"bb.scl"')), env)
+    lines = (HEAD + _coupling(victim='"bb.scl"')).splitlines()
+    assert err.line == lines.index('victim = "bb.scl"') + 1
+    return err.hint
+
+
+@case("COUPLING_NAMES_A_LINE")
+def _(env):
+    return _fails(lambda e: e.design(_coupling(victim='"b"')), env)
+
+
+@case("COUPLING_UNKNOWN_BUS")
+def _(env):
+    err = _fails(lambda e: e.design(_coupling(aggressor='"ss.sclk"')), env)
+    assert err.field == "coupling[0].aggressor" and "'s'" in err.hint
+    return err
+
+
+@case("COUPLING_WRONG_FAMILY", M.COUPLING_WRONG_FAMILY.format(family="open-drain"))
+def _(env):
+    return _fails(lambda e: e.design(_coupling(victim='"s.sclk"')), env)
+
+
+@case("COUPLING_UNKNOWN_SIGNAL", M.COUPLING_UNKNOWN_SIGNAL.format(bus="b"))
+def _(env):
+    err = _fails(lambda e: e.design(_coupling(victim='"b.sck"')), env)
+    assert "'scl'" in err.hint
+    return err
+
+
+@case("COUPLING_UNKNOWN_SEGMENT", M.COUPLING_UNKNOWN_SEGMENT.format(bus="b"))
+def _(env):
+    return _fails(lambda e: e.design(_coupling(extra='segment = "main"')), env)
+
+
+@case("COUPLING_TWICE")
+def _(env):
+    twice = _coupling() + _coupling()[len(I2C_BUS + SPI_BUS):]
+    return _fails(lambda e: e.design(twice), env)
+
+
 @case("PART_LACKS_PIN", M.PART_LACKS_PIN.format(function="i2c-sda"))
 def _(env):
     return _fails(lambda e: e.design(_device("nor-flash-spi")), env)

@@ -71,6 +71,7 @@ class Victim:
     sink_end: str = "near"
     source_levels: str = "the receiver's part data"
     source_t_sp: str = ""
+    source_vih: str = ""       # VIH's source where it differs from ``source_levels``
 
 
 @dataclass(frozen=True)
@@ -211,7 +212,8 @@ def coupling_checks(noise: dict, vic: Victim, *, subject: str, warn_margin=0.10)
                             warn_margin=warn_margin, details={"end": end, "held": held})
         else:
             lim = vic.vih[end]
-            chk = check_min("crosstalk-high", n.level, lim, "V", vic.source_levels,
+            chk = check_min("crosstalk-high", n.level, lim, "V",
+                            vic.source_vih or vic.source_levels,
                             f"{where}: noise pulls it to {format_si(n.level, 'V')} against "
                             f"VIH {format_si(lim, 'V')}", subject=subject,
                             warn_margin=warn_margin, details={"end": end, "held": held})

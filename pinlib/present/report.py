@@ -25,7 +25,7 @@ from pinlib.present.labels import check_label, humanize
 from pinlib.present.terminal import DEFAULT_WIDTH, status_word, wrap
 from pinlib.present.values import counts, format_value
 
-__all__ = ["format_text", "format_value", "problem_line", "bus_line", "counts",
+__all__ = ["format_text", "format_value", "problem_line", "bus_line", "coupling_line", "counts",
            "CAUTION_LINE", "MODES", "paint", "fit"]
 
 #: The caution in one line (the whole text heads ``--detail`` and the JSON).
@@ -172,8 +172,26 @@ def _gpio(bus: BusResult) -> list[str]:
     return parts
 
 
+def coupling_line(c) -> str:
+    """One coupling as one logical line: status, victim beside aggressor, the peak noise,
+    the minimum spacing against the design's, the maximum parallel length."""
+    head = f"{status_word(c.status)} {c.victim} beside {c.aggressor} (crosstalk)"
+    parts = []
+    peak = _fig_text(c, "peak_noise")
+    if peak:
+        parts.append(f"peak noise {peak}")
+    spacing = _fig_text(c, "spacing")
+    least = _fig_text(c, "minimum_spacing")
+    parts.append(f"spacing {spacing}, minimum {least or '— (none passes)'}")
+    run, longest = _fig_text(c, "parallel_length"), _fig_text(c, "maximum_parallel_length")
+    parts.append(f"parallel {run}, maximum {longest or '— (none passes)'}")
+    return f"{head}: {', '.join(parts)}"
+
+
 def bus_line(bus: BusResult) -> str:
     """One bus as one logical line: status, name, protocol and the figures that matter."""
+    if bus.protocol == "coupling":
+        return coupling_line(bus)
     head = f"{status_word(bus.status)} {bus.id} ({humanize(bus.protocol)})"
     if bus.segments:
         parts = []
@@ -195,7 +213,7 @@ def bus_line(bus: BusResult) -> str:
 def _problems(result: DesignResult) -> list[tuple[BusResult, str | None, str | None, Check]]:
     out = []
     for status in ("fail", "warn"):
-        for b in result.buses:
+        for b in result.results():
             for seg, signal, c in b.all_checks():
                 if c.status == status:
                     out.append((b, seg, signal, c))
@@ -207,6 +225,9 @@ def _closing(result: DesignResult) -> str:
     buses = len(result.buses)
     text = (f"{status_word(result.status)} {result.design}: {n['pass']} pass, {n['warn']} warn, "
             f"{n['fail']} fail on {buses} bus{'es' if buses != 1 else ''}")
+    pairs = len(result.couplings)
+    if pairs:
+        text += f" and {pairs} coupling{'s' if pairs != 1 else ''}"
     return text
 
 
@@ -225,7 +246,7 @@ def _summary(result: DesignResult, cols: int, more: str | None, quiet: bool) -> 
         for b, seg, signal, c in problems:
             out += wrap(problem_line(b, seg, signal, c), cols)
         out.append("")
-    for b in result.buses:
+    for b in result.results():
         out += wrap(bus_line(b), cols)
     for note in result.notes:
         out += wrap(f"note: {note}", cols)
