@@ -224,6 +224,9 @@ def _figures(res: CouplingResult, w: CouplingWorkings) -> None:
     res.figure("peak_noise", _peak(w.noise, w.victim), "V")
     res.figure("minimum_spacing", w.minimum_spacing, "m")
     res.figure("maximum_parallel_length", w.maximum_length, "m")
+    # the ends of the searches: a minimum or maximum at one of them is a bound
+    res.figure("spacing_searched_from", w.spacing_range[0], "m")
+    res.figure("length_searched_to", LENGTH_SEARCH_MAX, "m")
 
 
 def _peak(noise: dict, vic: Victim) -> float:

@@ -76,6 +76,8 @@ FIGURES: dict[str, str] = {
     "peak_noise": "Peak noise",
     "minimum_spacing": "Minimum spacing",
     "maximum_parallel_length": "Maximum parallel length",
+    "spacing_searched_from": "Spacing searched from",
+    "length_searched_to": "Length searched to",
 }
 
 #: Figure id -> a short label for a table's column head (symbols of the trade).

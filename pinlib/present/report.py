@@ -180,12 +180,23 @@ def coupling_line(c) -> str:
     peak = _fig_text(c, "peak_noise")
     if peak:
         parts.append(f"peak noise {peak}")
-    spacing = _fig_text(c, "spacing")
-    least = _fig_text(c, "minimum_spacing")
-    parts.append(f"spacing {spacing}, minimum {least or '— (none passes)'}")
-    run, longest = _fig_text(c, "parallel_length"), _fig_text(c, "maximum_parallel_length")
-    parts.append(f"parallel {run}, maximum {longest or '— (none passes)'}")
+    least = _bounded(c, "minimum_spacing", "spacing_searched_from", "or less")
+    parts.append(f"spacing {_fig_text(c, 'spacing')}, minimum {least}")
+    longest = _bounded(c, "maximum_parallel_length", "length_searched_to", "or more")
+    parts.append(f"parallel {_fig_text(c, 'parallel_length')}, maximum {longest}")
     return f"{head}: {', '.join(parts)}"
+
+
+def _bounded(c, name: str, bound: str, beyond: str) -> str:
+    """A search's result as text: "— (none passes)" where there is none, "18 µm or less"
+    where it is the search's own bound."""
+    f, b = c.figures.get(name), c.figures.get(bound)
+    if f is None or f.value is None:
+        return "— (none passes)"
+    text = format_value(f.value, f.unit)
+    if b is not None and b.value is not None and math.isclose(f.value, b.value, rel_tol=1e-9):
+        text += f" {beyond}"
+    return text
 
 
 def bus_line(bus: BusResult) -> str:
