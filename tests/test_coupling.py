@@ -133,3 +133,33 @@ def test_a_design_without_couplings_keeps_its_json():
     design = load_design("workbooks/designs/demo-board.toml")
     bare = check_design(type(design)(**{**design.__dict__, "couplings": ()}))
     assert "couplings" not in bare.to_json()
+
+
+def test_monte_carlo_reads_the_noise_from_a_table_that_follows_the_solver(tight, tmp_path):
+    from pinlib.engines import couplingbatch as cb
+    from pinlib.studies import whatif
+
+    design, result = tight
+    text = DESIGN + 'spacing_tolerance = "20 %"\nlength_tolerance = "10 %"\n'
+    path = tmp_path / "tol.toml"
+    path.write_text(text, encoding="utf-8")
+    d = load_design(path)
+    (c,) = d.couplings
+    nominal = result.couplings[0]
+    table = cb.CouplingTable.solve(c, nominal)
+    # between the grid's points the table agrees with the solver (derived from the
+    # solver itself; 2 % of the level: the noise is smooth in spacing and length)
+    w = nominal.workings
+    for fs, fl in ((0.9, 1.05), (1.13, 0.93)):
+        one = victim_noise(pair_at(c, c.spacing * fs), c.length * fl, w.aggressor, w.victim)
+        for key, n in one.items():
+            got = float(table.read(table.levels[key], np.array([fs]), np.array([fl]))[0])
+            assert got == pytest.approx(n.level, rel=0.02, abs=0.02)
+    mc = whatif.monte_carlo(d, 200, seed=3)
+    assert "b.scl<-edge-1" in mc.buses
+    mine = [k for k in mc.checks if k.bus == "b.scl<-edge-1"]
+    assert [k.id for k in mine] == [k.id for k in nominal.checks]
+    assert {p.name for p in mc.parameters} >= {"b.scl<-edge-1 spacing",
+                                                "b.scl<-edge-1 parallel length"}
+    # the nominal run fails on SCL: so do the boards around it
+    assert mc.buses["b.scl<-edge-1"].passes < 200
