@@ -163,3 +163,31 @@ def test_monte_carlo_reads_the_noise_from_a_table_that_follows_the_solver(tight,
                                                 "b.scl<-edge-1 parallel length"}
     # the nominal run fails on SCL: so do the boards around it
     assert mc.buses["b.scl<-edge-1"].passes < 200
+
+
+def test_the_charts_draw_what_the_engine_solved(tight):
+    from pinlib.present import charts as ch
+    from pinlib.present import plotdata
+
+    _, result = tight
+    c = result.couplings[0]
+    d = plotdata.noise_vs_spacing_data(c)
+    # every spacing drawn is one the searches solved (no solve again), sorted
+    assert len(d.spacing) == len(c.workings.sweep) and np.all(np.diff(d.spacing) > 0)
+    assert d.design_spacing == c.figures["spacing"].value
+    assert d.design_peak == pytest.approx(c.figures["peak_noise"].value, abs=1e-12)
+    # derived from the receivers' levels: VIL 0.3 VDD and VDD - VIH 0.3 VDD (UM10204
+    # rev. 6, table 9, through the test parts' classes)
+    assert 0 < d.allowed < 3.3
+    w = plotdata.noise_waveform_data(c)
+    assert set(w.traces) == {"held low, near end", "held low, far end",
+                             "held high, near end", "held high, far end"}
+    # each trace in the direction that hurts: the held-high one dips to the checked level
+    low = min(w.traces["held high, near end"])
+    check = next(k for k in c.checks if k.id == "crosstalk-high"
+                 and k.details == {"end": "near", "held": "high"})
+    assert low == pytest.approx(check.value, abs=1e-12)
+    spec = ch.noise_vs_spacing(d.spacing, d.peak, allowed=d.allowed,
+                               design_spacing=d.design_spacing, design_peak=d.design_peak,
+                               minimum_spacing=d.minimum_spacing).to_dict()
+    assert "minimum spacing" in json.dumps(spec)

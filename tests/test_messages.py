@@ -1107,6 +1107,14 @@ def _(env):
     return _fails(lambda e: e.design(twice), env)
 
 
+@case("NO_COUPLING_WORKINGS")
+def _(env):
+    from pinlib.model.result import CouplingResult
+    from pinlib.present import plotdata
+
+    return _fails(lambda e: plotdata.noise_vs_spacing_data(CouplingResult(id="x")), env)
+
+
 @case("PART_LACKS_PIN", M.PART_LACKS_PIN.format(function="i2c-sda"))
 def _(env):
     return _fails(lambda e: e.design(_device("nor-flash-spi")), env)
