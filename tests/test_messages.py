@@ -1115,6 +1115,13 @@ def _(env):
     return _fails(lambda e: plotdata.noise_vs_spacing_data(CouplingResult(id="x")), env)
 
 
+@case("NO_SUCH_COUPLING")
+def _(env):
+    from pinlib.widgets import CrosstalkExplorer
+
+    return _fails(lambda e: CrosstalkExplorer(e.write("design.toml", HEAD + I2C_BUS)), env)
+
+
 @case("PART_LACKS_PIN", M.PART_LACKS_PIN.format(function="i2c-sda"))
 def _(env):
     return _fails(lambda e: e.design(_device("nor-flash-spi")), env)

@@ -177,6 +177,7 @@ COUPLING_UNKNOWN_SIGNAL = "bus {bus} has no such signal"
 COUPLING_UNKNOWN_SEGMENT = "bus {bus} has no such segment"
 COUPLING_TWICE = "the same two lines are coupled twice"
 NO_COUPLING_WORKINGS = "not a coupling result with the engine's workings"
+NO_SUCH_COUPLING = "the design has no such [[coupling]]"
 PART_LACKS_PIN = "the part has no {function} pin"
 PART_LACKS_PIN_ON_SIDE = "the part has no {function} pin on side {side}"
 BRIDGE_IN_TWO_SEGMENTS = "a bridging part must appear in two segments, once per side"
@@ -518,6 +519,7 @@ MODULES = (
     "pinlib.present.widgets.spibudget",
     "pinlib.present.widgets.recorder",
     "pinlib.present.widgets.swaps",
+    "pinlib.present.widgets.crosstalk",
     "pinlib.present.review.draw",
     "pinlib.present.review.charts",
     "pinlib.present.review.montecarlo",
