@@ -17,7 +17,8 @@ from pathlib import Path
 
 from tests.bench.common import Result, format_ratio, machine
 
-MODULES = ["waveform", "candidates", "montecarlo", "library", "cli", "report", "design", "many",
+MODULES = ["waveform", "crosstalk", "candidates", "montecarlo", "library", "cli", "report",
+           "design", "many",
            "scaling",
            "widgets",
            "browser"]
