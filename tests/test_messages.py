@@ -1122,6 +1122,18 @@ def _(env):
     return _fails(lambda e: CrosstalkExplorer(e.write("design.toml", HEAD + I2C_BUS)), env)
 
 
+@case("TOO_MANY_COUPLED_STEPS",
+      M.TOO_MANY_COUPLED_STEPS.format(steps=133_671, limit=worklimits.MAX_COUPLED_STEPS))
+def _(env):
+    from pinlib.engines.dispatch import check_design
+
+    edge = '{ swing = "3.3 V", edge_time = "0.5 ns", source_resistance = "20 Ω" }'
+    text = _coupling(aggressor=edge).replace('"4 cm"\ngeometry', '"0.2 mm"\ngeometry')
+    err = _fails(lambda e: check_design(e.design(text)), env)
+    assert err.field == "coupling[0].parallel_length"
+    return err
+
+
 @case("PART_LACKS_PIN", M.PART_LACKS_PIN.format(function="i2c-sda"))
 def _(env):
     return _fails(lambda e: e.design(_device("nor-flash-spi")), env)

@@ -178,6 +178,8 @@ COUPLING_UNKNOWN_SEGMENT = "bus {bus} has no such segment"
 COUPLING_TWICE = "the same two lines are coupled twice"
 NO_COUPLING_WORKINGS = "not a coupling result with the engine's workings"
 NO_SUCH_COUPLING = "the design has no such [[coupling]]"
+TOO_MANY_COUPLED_STEPS = ("solving this run in time would take {steps:,} time steps "
+                          "(at most {limit:,})")
 PART_LACKS_PIN = "the part has no {function} pin"
 PART_LACKS_PIN_ON_SIDE = "the part has no {function} pin on side {side}"
 BRIDGE_IN_TWO_SEGMENTS = "a bridging part must appear in two segments, once per side"

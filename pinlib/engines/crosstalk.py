@@ -22,6 +22,7 @@ Checks at each end of the victim, for a held-low and a held-high line:
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -29,6 +30,7 @@ import numpy as np
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.quantity import format_si
+from pinlib.core.worklimits import MAX_COUPLED_STEPS
 from pinlib.model.result import Check, check_max, check_min
 from pinlib.physics.coupled import RAMP_FROM_10_90, CoupledLine
 from pinlib.physics.coupledwave import EndLoads, coupled_waves_batch
@@ -86,10 +88,22 @@ class EndNoise:
 
 
 def _time_grid(line: CoupledLine, length, agg: Aggressor, window: float):
+    """The solve's uniform grid and the aggressor's 0-100 % ramp; a grid longer than
+    :data:`~pinlib.core.worklimits.MAX_COUPLED_STEPS` is refused before any work."""
     ramp = agg.edge_time * RAMP_FROM_10_90
     er = np.minimum(np.asarray(line.er_eff_even, float), np.asarray(line.er_eff_odd, float))
     tau = float(np.min(np.asarray(length, float) * np.sqrt(er))) / C0
     dt = min(tau, ramp / _STEPS_PER_EDGE)
+    steps = (ramp + window) / dt if dt > 0 else math.inf
+    if not steps <= MAX_COUPLED_STEPS:
+        step = (ramp + window) / MAX_COUPLED_STEPS   # the finest step allowed
+        run = step * C0 / math.sqrt(float(np.max(er)))
+        edge = step * _STEPS_PER_EDGE / RAMP_FROM_10_90
+        raise InputError(M.TOO_MANY_COUPLED_STEPS.format(
+            steps=int(min(steps, 1e15)), limit=MAX_COUPLED_STEPS), field="parallel_length",
+            value=format_si(float(np.min(length)), "m"),
+            expected=f"a run of at least {format_si(run, 'm')} and an edge of at least "
+                     f"{format_si(edge, 's')}")
     return np.arange(0.0, ramp + window, dt), ramp
 
 

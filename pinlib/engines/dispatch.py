@@ -146,13 +146,22 @@ def evaluate_couplings(design: Design, buses: list) -> list:
         except PinlibError as err:
             if err.file is not None:
                 raise
-            index = line_index(design.text) if design.text else {}
-            raise type(err)(err.problem, file=str(design.path) if design.path else None,
-                            line=line_of(index, c.loc), field=dotted(c.loc), value=err.value,
-                            expected=err.expected,
-                            hint=M.MET_EVALUATING_BUS.format(bus=c.id, field=err.field or "?")
-                            ) from None
+            raise _coupling_located(err, c, design) from None
     return out
+
+
+def _coupling_located(err: PinlibError, c, design: Design) -> PinlibError:
+    """An engine's error placed at the coupling's table: at its key where the error
+    names one (``parallel_length``), else at the table with the value named in the hint."""
+    from pinlib.model.design import RawCoupling
+
+    index = line_index(design.text) if design.text else {}
+    own = err.field in RawCoupling.model_fields
+    loc = c.loc + ((err.field,) if own else ())
+    hint = err.hint if own else M.MET_EVALUATING_BUS.format(bus=c.id, field=err.field or "?")
+    return type(err)(err.problem, file=str(design.path) if design.path else None,
+                     line=line_of(index, loc) or line_of(index, c.loc), field=dotted(loc),
+                     value=err.value, expected=err.expected, hint=hint)
 
 
 def design_result(design: Design, buses: list, couplings: list | None = None) -> DesignResult:
