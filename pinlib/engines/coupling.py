@@ -38,6 +38,7 @@ from pinlib.engines.crosstalk import (
     coupling_checks,
     edge_of_passing,
     noise_batch,
+    noise_of_waves,
     victim_waves,
 )
 from pinlib.model.design import Coupling, Design, Edge
@@ -172,11 +173,16 @@ def solve_coupling(coupling: Coupling, results: dict[str, BusResult], design: De
     pair = pair_at(coupling, coupling.spacing, notes)
     vic = victim_of(coupling, results[coupling.victim_bus], pair, design)
     agg = aggressor_of(coupling, results)
-    t, waves = victim_waves(pair, coupling.length, agg, vic)
     lo, hi = _spacing_range(coupling)
+    # the design point and the search's first grid in one solve, the waves of the first
+    # kept for the charts
+    first = [float(x) for x in np.exp(np.linspace(np.log(lo), np.log(hi), SEARCH_POINTS))]
+    spacings = [coupling.spacing] + first
+    t, rows = victim_waves(pair_at(coupling, np.array(spacings)), coupling.length, agg, vic)
     memo: dict = {}
-    first = np.exp(np.linspace(np.log(lo), np.log(hi), SEARCH_POINTS))
-    _sweep(coupling, agg, vic, memo, list(first) + [coupling.spacing])
+    for s, n in zip(spacings, noise_of_waves(t, rows, vic), strict=True):
+        memo.setdefault(s, n)
+    waves = {k: v[0] for k, v in rows.items()}
     s_min = edge_of_passing(lambda s: _sweep(coupling, agg, vic, memo, s), lo, hi,
                             rel=SEARCH_REL, points=SEARCH_POINTS)
     ramp = agg.edge_time * RAMP_FROM_10_90
@@ -187,8 +193,8 @@ def solve_coupling(coupling: Coupling, results: dict[str, BusResult], design: De
         lambda ls: [_passes(n, vic) for n in noise_batch(pair, ls, agg, vic)],
         len_lo, LENGTH_SEARCH_MAX, rel=SEARCH_REL, points=SEARCH_POINTS,
         passing_above=False)
-    return CouplingWorkings(coupling, vic, agg, t, {k: v[0] for k, v in waves.items()},
-                            memo[coupling.spacing], memo, (lo, hi), s_min, l_max)
+    return CouplingWorkings(coupling, vic, agg, t, waves, memo[coupling.spacing], memo,
+                            (lo, hi), s_min, l_max)
 
 
 def evaluate_coupling(coupling: Coupling, results: dict[str, BusResult],

@@ -37,6 +37,7 @@ from pinlib.physics.coupledwave import EndLoads, coupled_waves_batch
 from pinlib.physics.lines.model import C0
 
 __all__ = ["Aggressor", "Victim", "EndNoise", "victim_noise", "victim_waves", "noise_batch",
+           "noise_of_waves",
            "coupling_checks", "edge_of_passing", "minimum_spacing", "maximum_length"]
 
 _ENDS = ("near", "far")
@@ -190,6 +191,11 @@ def noise_batch(line: CoupledLine, length, agg: Aggressor, vic: Victim,
                 window: float = 150e-9) -> list[dict]:
     """:func:`victim_noise` for B pairs in one solve: a list of B such dicts."""
     t, waves = victim_waves(line, length, agg, vic, window)
+    return noise_of_waves(t, waves, vic)
+
+
+def noise_of_waves(t, waves: dict, vic: Victim) -> list[dict]:
+    """:func:`victim_noise`'s dicts from :func:`victim_waves`' result, one per pair."""
     nb = next(iter(waves.values())).shape[0]
     out: list[dict] = [{} for _ in range(nb)]
     for (held, end), rows in waves.items():
