@@ -191,3 +191,15 @@ def test_the_charts_draw_what_the_engine_solved(tight):
                                design_spacing=d.design_spacing, design_peak=d.design_peak,
                                minimum_spacing=d.minimum_spacing).to_dict()
     assert "minimum spacing" in json.dumps(spec)
+
+
+def test_a_snapshot_comparison_names_a_coupling_that_moved(tight):
+    from pinlib.studies.compare import compare
+
+    _, result = tight
+    old = result.to_json()
+    new = json.loads(json.dumps(old))
+    fig = new["couplings"][0]["figures"]["peak_noise"]
+    fig["value"] *= 1.5  # invented: the same run 50 % noisier
+    text = json.dumps(compare(old, new).to_json())
+    assert "b.scl<-edge-1" in text and "peak_noise" in text
