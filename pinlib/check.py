@@ -12,7 +12,8 @@ from pinlib.engines.dispatch import (
     design_result,
     engine,
     evaluate_bus,
+    evaluate_couplings,
 )
 
 __all__ = ["ENGINES", "check_design", "check_file", "design_result", "engine",
-           "evaluate_bus"]
+           "evaluate_bus", "evaluate_couplings"]

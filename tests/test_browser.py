@@ -126,6 +126,11 @@ SPECS = [
          required=("Design", "Load", "Device", "Put there", "Apply", "Reset"),
          change=("Device", "U7"),
          bad=(("Design", "no-such-board.toml", "Load"),)),
+    # no typed quantity here: sliders and toggle buttons only
+    Spec("06-crosstalk.ipynb",
+         required=("Spacing", "Parallel length", "Aggressor edge", "Show"),
+         change=("Show", "held low"),
+         bad=()),
 ]
 
 

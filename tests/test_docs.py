@@ -66,7 +66,8 @@ def test_design_page_names_every_field():
 
     text = _text("formats/design.md")
     models = (design.RawDesign, design.RawBus, design.RawSegment, design.RawTrace,
-              design.RawSection, design.RawCable, design.RawDevice, design.RawGeometry)
+              design.RawSection, design.RawCable, design.RawDevice, design.RawGeometry,
+              design.RawCoupling, design.RawEdge)
     missing = sorted({f for m in models for f in _fields(m)
                       if f"`{f}`" not in text and f"`{f} " not in text
                       and f not in ("board", "bus", "segment", "lines")})

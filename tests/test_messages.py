@@ -1083,6 +1083,88 @@ def _(env):
     return _fails(lambda e: e.design(_device("eeprom-i2c", ', side = "a"')), env)
 
 
+def _coupling(victim='"b.scl"', aggressor='"s.sclk"', extra=""):
+    return (I2C_BUS + SPI_BUS + f"""
+[[coupling]]
+victim = {victim}
+aggressor = {aggressor}
+spacing = "0.3 mm"
+parallel_length = "4 cm"
+geometry = "g"
+{extra}""")
+
+
+@case("DID_YOU_MEAN", M.DID_YOU_MEAN.format(name="b"))
+def _(env):
+    err = _fails(lambda e: e.design(_coupling(victim='"bb.scl"')), env)
+    lines = (HEAD + _coupling(victim='"bb.scl"')).splitlines()
+    assert err.line == lines.index('victim = "bb.scl"') + 1
+    return err.hint
+
+
+@case("COUPLING_NAMES_A_LINE")
+def _(env):
+    return _fails(lambda e: e.design(_coupling(victim='"b"')), env)
+
+
+@case("COUPLING_UNKNOWN_BUS")
+def _(env):
+    err = _fails(lambda e: e.design(_coupling(aggressor='"ss.sclk"')), env)
+    assert err.field == "coupling[0].aggressor" and "'s'" in err.hint
+    return err
+
+
+@case("COUPLING_WRONG_FAMILY", M.COUPLING_WRONG_FAMILY.format(family="open-drain"))
+def _(env):
+    return _fails(lambda e: e.design(_coupling(victim='"s.sclk"')), env)
+
+
+@case("COUPLING_UNKNOWN_SIGNAL", M.COUPLING_UNKNOWN_SIGNAL.format(bus="b"))
+def _(env):
+    err = _fails(lambda e: e.design(_coupling(victim='"b.sck"')), env)
+    assert "'scl'" in err.hint
+    return err
+
+
+@case("COUPLING_UNKNOWN_SEGMENT", M.COUPLING_UNKNOWN_SEGMENT.format(bus="b"))
+def _(env):
+    return _fails(lambda e: e.design(_coupling(extra='segment = "main"')), env)
+
+
+@case("COUPLING_TWICE")
+def _(env):
+    twice = _coupling() + _coupling()[len(I2C_BUS + SPI_BUS):]
+    return _fails(lambda e: e.design(twice), env)
+
+
+@case("NO_COUPLING_WORKINGS")
+def _(env):
+    from pinlib.model.result import CouplingResult
+    from pinlib.present import plotdata
+
+    return _fails(lambda e: plotdata.noise_vs_spacing_data(CouplingResult(id="x")), env)
+
+
+@case("NO_SUCH_COUPLING")
+def _(env):
+    from pinlib.widgets import CrosstalkExplorer
+
+    return _fails(lambda e: CrosstalkExplorer(e.write("design.toml", HEAD + I2C_BUS)), env)
+
+
+# the count depends on the batch the run is solved in: the text up to it, then the limit
+@case("TOO_MANY_COUPLED_STEPS", M.TOO_MANY_COUPLED_STEPS.split("{steps")[0])
+def _(env):
+    from pinlib.engines.dispatch import check_design
+
+    edge = '{ swing = "3.3 V", edge_time = "0.5 ns", source_resistance = "20 Ω" }'
+    text = _coupling(aggressor=edge).replace('"4 cm"\ngeometry', '"0.2 mm"\ngeometry')
+    err = _fails(lambda e: check_design(e.design(text)), env)
+    assert err.field == "coupling[0].parallel_length"
+    assert err.problem.endswith(f"(at most {worklimits.MAX_COUPLED_STEPS:,})")
+    return err.problem
+
+
 @case("PART_LACKS_PIN", M.PART_LACKS_PIN.format(function="i2c-sda"))
 def _(env):
     return _fails(lambda e: e.design(_device("nor-flash-spi")), env)

@@ -124,7 +124,7 @@ def test_quiet_all_pass_prints_the_summary_line(tmp_path, monkeypatch, capsys):
 
 def test_detail_shows_every_check_and_each_figure_once(monkeypatch, capsys, demo):
     _, out = _run(monkeypatch, capsys, 120, "--detail")
-    n = sum(1 for b in demo.buses for _ in b.all_checks())
+    n = sum(1 for b in demo.results() for _ in b.all_checks())
     rows = [ln for ln in out.splitlines() if re.match(r"\s+(PASS|WARN|FAIL)\s{2,}\S", ln)]
     assert len(rows) == n
     # pullup = pullup_resistor = pullup_sda = pullup_scl on main-3v3: one row, the resistor

@@ -90,7 +90,8 @@ def page(built):
 
 def _expected_charts(design) -> dict[str, int]:
     """How many charts of each kind the demo's structure calls for."""
-    n = {"pullup-window": 0, "edge-vs-load": 0, "waveforms": 0, "timing-budget": 0}
+    n = {"pullup-window": 0, "edge-vs-load": 0, "waveforms": 0, "timing-budget": 0,
+         "noise-vs-spacing": 0}
     for bus in design.buses:
         if bus.protocol in ("i2c", "smbus"):
             n["pullup-window"] += 2 * len(bus.segments)      # SDA and SCL of each segment
@@ -105,6 +106,8 @@ def _expected_charts(design) -> dict[str, int]:
                     drivers = 1
                 n["edge-vs-load"] += drivers
                 n["waveforms"] += drivers
+    n["noise-vs-spacing"] += len(design.couplings)  # and its victim's waveforms
+    n["waveforms"] += len(design.couplings)
     return n
 
 
@@ -132,9 +135,10 @@ def test_caution_is_at_the_top(page, built):
 def test_every_chart_svg_is_present(page, demo):
     design, _ = demo
     expected = _expected_charts(design)
-    # the demo: 3 open-drain segments, two SPI buses with 4 and 3 routed lines
-    assert expected == {"pullup-window": 6, "edge-vs-load": 7, "waveforms": 7,
-                        "timing-budget": 2}
+    # the demo: 3 open-drain segments, two SPI buses with 4 and 3 routed lines, one
+    # coupling
+    assert expected == {"pullup-window": 6, "edge-vs-load": 7, "waveforms": 8,
+                        "timing-budget": 2, "noise-vs-spacing": 1}
     found = _figures_by_kind(page)
     for kind, n in expected.items():
         bodies = found.get(kind, [])
@@ -243,7 +247,7 @@ def test_render_functions(demo):
     assert f"{mc['checks'][0]['pass_fraction']:.2%}" in text
     assert 'id="monte-carlo"' in text
     md = review.render_markdown(design, result, mc=mc)
-    assert "## Monte Carlo" in md and md.count("data:image/svg+xml") == 23
+    assert "## Monte Carlo" in md and md.count("data:image/svg+xml") == 25
 
 
 def _monte_carlo_result() -> dict:
@@ -529,7 +533,7 @@ def test_command_writes_html(tmp_path, capsys):
     code = main(["report", str(DEMO), "--html", str(out)])
     assert code == 0  # the demo warns, which passes
     text = out.read_text(encoding="utf-8")
-    assert text.count("<svg") == 22
+    assert text.count("<svg") == 24
     assert "wrote" in capsys.readouterr().err
     assert not list(tmp_path.glob(".review.html.*"))  # no temporary file left
 
@@ -539,7 +543,7 @@ def test_command_writes_markdown_with_its_charts(tmp_path):
     assert main(["report", str(DEMO), "--md", str(out)]) == 0
     text = out.read_text(encoding="utf-8")
     charts = sorted((tmp_path / "board-charts").glob("*.svg"))
-    assert len(charts) == 22
+    assert len(charts) == 24
     for c in charts:
         assert f"(board-charts/{c.name})" in text
 
@@ -691,7 +695,7 @@ def test_report_renders_in_chromium(page, tmp_path):
     assert dom.returncode == 0
     assert _console_lines(dom.stderr) == []
     figures = _figures_by_kind(dom.stdout)
-    assert sum(len(v) for v in figures.values()) == 22
+    assert sum(len(v) for v in figures.values()) == 24
     assert all(b.count("<svg") == 1 for v in figures.values() for b in v)
 
 

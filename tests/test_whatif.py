@@ -208,7 +208,8 @@ def test_zero_tolerances_every_sample_is_the_nominal_result(tmp_path):
 
 def test_zero_tolerances_on_the_demo_design(tmp_path):
     text = DEMO.read_text(encoding="utf-8")
-    text = re.sub(r'\n(supply_tolerance|pullup_tolerance|length_tolerance) = "[^"]*"', "", text)
+    text = re.sub(r'\n(supply_tolerance|pullup_tolerance|length_tolerance|spacing_tolerance) = '
+                  r'"[^"]*"', "", text)
     text = text.replace("[[bus.segment]]\n",
                         '[[bus.segment]]\npullup_tolerance = "0 %"\nsupply_tolerance = "0 %"\n')
     text = text.replace('protocol = "smbus"\n', 'protocol = "smbus"\npullup_tolerance = "0 %"\n')

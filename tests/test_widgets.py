@@ -669,3 +669,26 @@ def test_line_explorer_daisy_chain_offers_each_receiver(library):
     assert subjects == {"U2", "U3"}
     le.set(placement="far end")
     assert le.receiver_view.disabled and le.receiver_view.value == ""
+# =========================================================================== crosstalk
+
+
+def test_crosstalk_explorer_is_the_engines_coupling():
+    from pinlib.widgets import CrosstalkExplorer
+
+    demo = Path(__file__).resolve().parents[1] / "workbooks" / "designs" / "demo-board.toml"
+    x = CrosstalkExplorer(demo)
+    # at the design's own settings the widget shows the check's coupling result
+    (expected,) = check_file(demo).couplings
+    assert [c.to_json() for c in x.result.checks] == [c.to_json() for c in expected.checks]
+    assert x.noise_chart.svg and x.wave_chart.svg
+    near = x.figures["peak_noise"].value
+    # closer traces over a longer run with a faster edge: more noise (derived from Kb
+    # rising as the gap closes, pinlib.physics.coupled)
+    x.set(spacing=0.05e-3, length=0.3, edge_time=0.2e-9)
+    assert x.error is None and x.figures["peak_noise"].value > near
+    assert x.result.aggressor == "edge-1"   # the edge moved: a described edge now
+    assert x.updates == 1                   # three settings, one recompute
+    x.show.value = "held high"              # a click: the chart only, nothing solved again
+    assert x.updates == 1 and "held low" not in x.wave_chart.svg
+    with pytest.raises(InputError):
+        x.set(spacing=-1.0)

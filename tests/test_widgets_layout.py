@@ -32,6 +32,7 @@ from pinlib.core.errors import InputError  # noqa: E402
 from pinlib.library import load_library  # noqa: E402
 from pinlib.present.widgets import (  # noqa: E402
     BusBuilder,
+    CrosstalkExplorer,
     IbisImporter,
     LineExplorer,
     PartRecorder,
@@ -57,6 +58,7 @@ def panels(library, tmp_path_factory):
         "PartRecorder": PartRecorder(tmp_path_factory.mktemp("team") / "team"),
         "IbisImporter": _importer(tmp_path_factory.mktemp("ibis")),
         "SwapExplorer": SwapExplorer(DEMO),
+        "CrosstalkExplorer": CrosstalkExplorer(DEMO),
     }
 
 
@@ -91,7 +93,7 @@ def _attributes(panel) -> list:
 
 
 @pytest.mark.parametrize("name", ["BusBuilder", "LineExplorer", "SpiBudget", "PartRecorder",
-                                  "IbisImporter", "SwapExplorer"])
+                                  "IbisImporter", "SwapExplorer", "CrosstalkExplorer"])
 def test_no_two_widgets_share_a_layout_object(panels, name):
     panel = panels[name]
     widgets = [w for w in _tree(panel.widget) if hasattr(w, "layout")]
@@ -105,7 +107,7 @@ def test_no_two_widgets_share_a_layout_object(panels, name):
 
 
 @pytest.mark.parametrize("name", ["BusBuilder", "LineExplorer", "SpiBudget", "PartRecorder",
-                                  "IbisImporter", "SwapExplorer"])
+                                  "IbisImporter", "SwapExplorer", "CrosstalkExplorer"])
 def test_every_control_of_a_panel_is_in_its_widget_tree(panels, name):
     panel = panels[name]
     tree = {id(w) for w in _tree(panel.widget)}
@@ -133,7 +135,7 @@ def test_hiding_the_unused_trace_fields_hides_nothing_else(library):
 
 
 def test_control_column_is_fixed_and_outputs_wrap_below(panels):
-    for name in ("BusBuilder", "LineExplorer", "SpiBudget"):
+    for name in ("BusBuilder", "LineExplorer", "SpiBudget", "CrosstalkExplorer"):
         row = next(w for w in _tree(panels[name].widget)
                    if isinstance(w, W.Box) and w.layout.flex_flow == "row wrap")
         controls, outputs = row.children

@@ -173,6 +173,18 @@ SUPPLY_NOT_POSITIVE = "the supply must be positive"
 BUS_NEEDS_CONTROLLER = "a bus needs a controller"
 BRIDGE_NEEDS_SIDE = "a bridging part names its side in each segment"
 SIDE_ONLY_FOR_BRIDGE = "only a bridging part has sides"
+# [[coupling]] tables (pinlib/model/design/coupling.py)
+DID_YOU_MEAN = "did you mean '{name}'?"
+COUPLING_NAMES_A_LINE = "a coupling names a line as BUS.SIGNAL"
+COUPLING_UNKNOWN_BUS = "no bus with this id"
+COUPLING_WRONG_FAMILY = "this end of a coupling must be a {family} line"
+COUPLING_UNKNOWN_SIGNAL = "bus {bus} has no such signal"
+COUPLING_UNKNOWN_SEGMENT = "bus {bus} has no such segment"
+COUPLING_TWICE = "the same two lines are coupled twice"
+NO_COUPLING_WORKINGS = "not a coupling result with the engine's workings"
+NO_SUCH_COUPLING = "the design has no such [[coupling]]"
+TOO_MANY_COUPLED_STEPS = ("solving this run in time would take {steps:,} time steps "
+                          "(at most {limit:,})")
 PART_LACKS_PIN = "the part has no {function} pin"
 PART_LACKS_PIN_ON_SIDE = "the part has no {function} pin on side {side}"
 BRIDGE_IN_TWO_SEGMENTS = "a bridging part must appear in two segments, once per side"
@@ -533,6 +545,7 @@ MODULES = (
     "pinlib.present.widgets.spibudget",
     "pinlib.present.widgets.recorder",
     "pinlib.present.widgets.swaps",
+    "pinlib.present.widgets.crosstalk",
     "pinlib.present.review.draw",
     "pinlib.present.review.charts",
     "pinlib.present.review.montecarlo",

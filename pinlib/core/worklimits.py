@@ -17,7 +17,7 @@ development machine, with the fit store off; ``make bench`` prints the scaling l
 from __future__ import annotations
 
 __all__ = ["MAX_BOARDS", "MAX_DEVICES_OPEN_DRAIN", "MAX_DEVICES_PUSH_PULL",
-           "MAX_ROUTE_STRETCHES", "MAX_SECTIONS_PER_LINE"]
+           "MAX_ROUTE_STRETCHES", "MAX_SECTIONS_PER_LINE", "MAX_COUPLED_STEPS"]
 
 #: Devices on one I2C or SMBus bus, over all its segments.  A 10-bit address space has
 #: 1024 addresses (published: I2C-bus specification UM10204, 10-bit addressing), so a
@@ -53,3 +53,11 @@ MAX_ROUTE_STRETCHES = 64
 #: with a progress bar and stop cleanly on Ctrl-C.  Beyond that, counts are better had from
 #: several runs (seeds) added up.
 MAX_BOARDS = 100_000_000
+
+#: Time steps of one solve of a coupled pair (:mod:`pinlib.engines.crosstalk`).  The step
+#: is the shorter of the run's delay and a fiftieth of the aggressor's ramp, over the
+#: ramp and 150 ns after it: a 1 ns edge takes about 6,000 steps (0.2 s for both held
+#: states), 100,000 steps about 4 s, and a search for the minimum spacing takes a few
+#: such solves.  Only a run far shorter than its edge (a fraction of a millimetre) or an
+#: edge under about 100 ps needs more; such a run couples little.
+MAX_COUPLED_STEPS = 100_000

@@ -22,6 +22,7 @@ Checks at each end of the victim, for a held-low and a held-high line:
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -29,13 +30,15 @@ import numpy as np
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.quantity import format_si
+from pinlib.core.worklimits import MAX_COUPLED_STEPS
 from pinlib.model.result import Check, check_max, check_min
 from pinlib.physics.coupled import RAMP_FROM_10_90, CoupledLine
-from pinlib.physics.coupledwave import EndLoads, coupled_waves
+from pinlib.physics.coupledwave import EndLoads, coupled_waves_batch
 from pinlib.physics.lines.model import C0
 
-__all__ = ["Aggressor", "Victim", "EndNoise", "victim_noise", "coupling_checks",
-           "minimum_spacing"]
+__all__ = ["Aggressor", "Victim", "EndNoise", "victim_noise", "victim_waves", "noise_batch",
+           "noise_of_waves",
+           "coupling_checks", "edge_of_passing", "minimum_spacing", "maximum_length"]
 
 _ENDS = ("near", "far")
 _STEPS_PER_EDGE = 50  # time steps over the aggressor's ramp (common practice, no source)
@@ -71,6 +74,7 @@ class Victim:
     sink_end: str = "near"
     source_levels: str = "the receiver's part data"
     source_t_sp: str = ""
+    source_vih: str = ""       # VIH's source where it differs from ``source_levels``
 
 
 @dataclass(frozen=True)
@@ -84,10 +88,23 @@ class EndNoise:
     open: bool
 
 
-def _time_grid(line: CoupledLine, length: float, agg: Aggressor, window: float):
+def _time_grid(line: CoupledLine, length, agg: Aggressor, window: float):
+    """The solve's uniform grid and the aggressor's 0-100 % ramp; a grid longer than
+    :data:`~pinlib.core.worklimits.MAX_COUPLED_STEPS` is refused before any work."""
     ramp = agg.edge_time * RAMP_FROM_10_90
-    tau = length * np.sqrt(min(float(line.er_eff_even), float(line.er_eff_odd))) / C0
+    er = np.minimum(np.asarray(line.er_eff_even, float), np.asarray(line.er_eff_odd, float))
+    tau = float(np.min(np.asarray(length, float) * np.sqrt(er))) / C0
     dt = min(tau, ramp / _STEPS_PER_EDGE)
+    steps = (ramp + window) / dt if dt > 0 else math.inf
+    if not steps <= MAX_COUPLED_STEPS:
+        step = (ramp + window) / MAX_COUPLED_STEPS   # the finest step allowed
+        run = step * C0 / math.sqrt(float(np.max(er)))
+        edge = step * _STEPS_PER_EDGE / RAMP_FROM_10_90
+        raise InputError(M.TOO_MANY_COUPLED_STEPS.format(
+            steps=int(min(steps, 1e15)), limit=MAX_COUPLED_STEPS), field="parallel_length",
+            value=format_si(float(np.min(length)), "m"),
+            expected=f"a run of at least {format_si(run, 'm')} and an edge of at least "
+                     f"{format_si(edge, 's')}")
     return np.arange(0.0, ramp + window, dt), ramp
 
 
@@ -109,6 +126,19 @@ def _loads(vic: Victim, agg: Aggressor, t, ramp, held: str):
     return near, far
 
 
+def _stacked(vic: Victim, agg: Aggressor, t, ramp, nb: int):
+    """The loads of ``nb`` pairs held low followed by the same ``nb`` held high."""
+    ends = []
+    for k in range(2):  # near, far
+        per = [_loads(vic, agg, t, ramp, held)[k] for held in ("low", "high")]
+        r = np.repeat(np.array([p.r for p in per], float), nb, axis=0)
+        c = np.repeat(np.array([p.c for p in per], float), nb, axis=0)
+        v = np.repeat(np.stack([np.broadcast_to(np.asarray(p.v, float).reshape(2, -1),
+                                                (2, t.size)) for p in per]), nb, axis=0)
+        ends.append(EndLoads(r, c, v))
+    return ends
+
+
 def _excursion(t, v, threshold, held: str) -> EndNoise:
     dev = v - v[0]
     best = None
@@ -124,6 +154,59 @@ def _excursion(t, v, threshold, held: str) -> EndNoise:
     return best
 
 
+def _check_inputs(vic: Victim, agg: Aggressor) -> None:
+    for name, val in (("r_pullup", vic.r_pullup), ("r_sink", vic.r_sink),
+                      ("edge_time", agg.edge_time), ("r_source", agg.r_source)):
+        if not (np.isfinite(val) and val > 0):
+            raise InputError(M.PARAMETER_OUT_OF_RANGE.format(name=name), field=name,
+                             value=val, expected="a number > 0, finite")
+
+
+def victim_waves(line: CoupledLine, length, agg: Aggressor, vic: Victim,
+                 window: float = 150e-9):
+    """The victim's waveforms at both ends for B pairs (``line``'s fields and ``length``
+    broadcast to (B,)), held low and held high, in one batched solve.
+
+    Returns ``(t, {(held, end): array (B, nt)})``. [s], [V]
+    """
+    _check_inputs(vic, agg)
+    length = np.atleast_1d(np.asarray(length, float))
+    fields = np.broadcast_arrays(np.asarray(line.z_even, float), length)
+    nb = fields[0].size
+    t, ramp = _time_grid(line, length, agg, window)
+    near, far = _stacked(vic, agg, t, ramp, nb)
+    pair = CoupledLine(*(np.tile(np.broadcast_to(np.asarray(getattr(line, f), float),
+                                                 (nb,)), 2)
+                         for f in CoupledLine.__dataclass_fields__))
+    w = coupled_waves_batch(pair, np.tile(np.broadcast_to(length, (nb,)), 2), t, near, far)
+    out = {}
+    for k, held in enumerate(("low", "high")):
+        rows = slice(k * nb, (k + 1) * nb)
+        out[(held, "near")] = w.near[rows, 1]
+        out[(held, "far")] = w.far[rows, 1]
+    return t, out
+
+
+def noise_batch(line: CoupledLine, length, agg: Aggressor, vic: Victim,
+                window: float = 150e-9) -> list[dict]:
+    """:func:`victim_noise` for B pairs in one solve: a list of B such dicts."""
+    t, waves = victim_waves(line, length, agg, vic, window)
+    return noise_of_waves(t, waves, vic)
+
+
+def noise_of_waves(t, waves: dict, vic: Victim) -> list[dict]:
+    """:func:`victim_noise`'s dicts from :func:`victim_waves`' result, one per pair."""
+    nb = next(iter(waves.values())).shape[0]
+    out: list[dict] = [{} for _ in range(nb)]
+    for (held, end), rows in waves.items():
+        thr = (vic.vil if held == "low" else vic.vih).get(end)
+        if thr is None:
+            continue
+        for b in range(nb):
+            out[b][(held, end)] = _excursion(t, rows[b], thr, held)
+    return out
+
+
 def victim_noise(line: CoupledLine, length: float, agg: Aggressor, vic: Victim,
                  window: float = 150e-9) -> dict:
     """The victim's worst excursion at each end with a receiver, held low and held high.
@@ -131,21 +214,7 @@ def victim_noise(line: CoupledLine, length: float, agg: Aggressor, vic: Victim,
     Returns ``{(held, end): EndNoise}`` for held in ('low', 'high') and each end with a
     threshold. ``window`` is how long after the edge the waveform is followed. [s]
     """
-    for name, val in (("r_pullup", vic.r_pullup), ("r_sink", vic.r_sink),
-                      ("edge_time", agg.edge_time), ("r_source", agg.r_source)):
-        if not (np.isfinite(val) and val > 0):
-            raise InputError(M.PARAMETER_OUT_OF_RANGE.format(name=name), field=name,
-                             value=val, expected="a number > 0, finite")
-    t, ramp = _time_grid(line, length, agg, window)
-    out = {}
-    for held in ("low", "high"):
-        near, far = _loads(vic, agg, t, ramp, held)
-        w = coupled_waves(line, length, t, near, far)
-        for end, wave in (("near", w.near[1]), ("far", w.far[1])):
-            thr = (vic.vil if held == "low" else vic.vih).get(end)
-            if thr is not None:
-                out[(held, end)] = _excursion(t, wave, thr, held)
-    return out
+    return noise_batch(line, length, agg, vic, window)[0]
 
 
 def coupling_checks(noise: dict, vic: Victim, *, subject: str, warn_margin=0.10) -> list[Check]:
@@ -163,7 +232,8 @@ def coupling_checks(noise: dict, vic: Victim, *, subject: str, warn_margin=0.10)
                             warn_margin=warn_margin, details={"end": end, "held": held})
         else:
             lim = vic.vih[end]
-            chk = check_min("crosstalk-high", n.level, lim, "V", vic.source_levels,
+            chk = check_min("crosstalk-high", n.level, lim, "V",
+                            vic.source_vih or vic.source_levels,
                             f"{where}: noise pulls it to {format_si(n.level, 'V')} against "
                             f"VIH {format_si(lim, 'V')}", subject=subject,
                             warn_margin=warn_margin, details={"end": end, "held": held})
@@ -209,22 +279,65 @@ def _glitch(n: EndNoise, vic: Victim, where: str, subject: str, end: str, held: 
 _NO_FILTER = "I2C-bus specification UM10204: Standard-mode inputs need not suppress spikes"
 
 
+def _passes(noise: dict, vic: Victim) -> bool:
+    return all(c.status != "fail" for c in coupling_checks(noise, vic, subject="victim"))
+
+
+def edge_of_passing(solve, lo: float, hi: float, *, rel=0.01, points: int = 12,
+                    passing_above: bool = True) -> float | None:
+    """The edge between failing and passing values of a quantity on [lo, hi], found on
+    batched log-spaced grids (each ``solve(array) -> list of bools`` one batched solve),
+    each grid refining the bracket of the last until it is within ``rel``.
+
+    ``passing_above``: the quantity passes at large values (spacing) and the edge is the
+    smallest passing one; otherwise (length) the largest passing one. None where no
+    grid point passes; the bound itself where every point passes.
+    """
+    a, b = np.log(lo), np.log(hi)
+    found = None
+    while True:
+        grid = np.exp(np.linspace(a, b, points))
+        ok = np.asarray(solve(grid), bool)
+        if passing_above:
+            # the smallest point from which every larger one passes
+            bad = np.flatnonzero(~ok)
+            first = 0 if bad.size == 0 else bad[-1] + 1
+            if first >= points:
+                return found
+            found = float(grid[first])
+            if first == 0:
+                return found
+            a, b = np.log(grid[first - 1]), np.log(grid[first])
+        else:
+            bad = np.flatnonzero(~ok)
+            last = points - 1 if bad.size == 0 else bad[0] - 1
+            if last < 0:
+                return found
+            found = float(grid[last])
+            if last == points - 1:
+                return found
+            a, b = np.log(grid[last]), np.log(grid[last + 1])
+        if b - a <= np.log1p(rel):
+            return found
+
+
 def minimum_spacing(make_line, length: float, agg: Aggressor, vic: Victim, lo: float,
                     hi: float, *, rel=0.01) -> float | None:
-    """The smallest spacing in [lo, hi] at which no check fails, by bisection in log
-    spacing (the noise falls monotonically with spacing). ``make_line(s)`` gives the
-    pair at spacing ``s``. None where even ``hi`` fails; ``lo`` where ``lo`` passes. [m]"""
-    def ok(s):
-        checks = coupling_checks(victim_noise(make_line(s), length, agg, vic), vic,
-                                 subject="victim")
-        return all(c.status != "fail" for c in checks)
+    """The smallest spacing in [lo, hi] at which no check fails (the noise falls
+    monotonically with spacing), on batched grids of spacings (:func:`edge_of_passing`).
+    ``make_line(s)`` gives the pair at spacings ``s`` (an array: the physics broadcasts).
+    None where even ``hi`` fails; ``lo`` where ``lo`` passes. [m]"""
+    def solve(s):
+        return [_passes(n, vic) for n in noise_batch(make_line(s), length, agg, vic)]
 
-    if not ok(hi):
-        return None
-    if ok(lo):
-        return lo
-    a, b = np.log(lo), np.log(hi)
-    while b - a > np.log1p(rel):
-        m = 0.5 * (a + b)
-        a, b = (a, m) if ok(np.exp(m)) else (m, b)
-    return float(np.exp(b))
+    return edge_of_passing(solve, lo, hi, rel=rel)
+
+
+def maximum_length(line: CoupledLine, agg: Aggressor, vic: Victim, lo: float, hi: float,
+                   *, rel=0.01) -> float | None:
+    """The longest parallel run in [lo, hi] at which no check fails, on batched grids of
+    lengths. None where even ``lo`` fails; ``hi`` where ``hi`` passes. [m]"""
+    def solve(lengths):
+        return [_passes(n, vic) for n in noise_batch(line, lengths, agg, vic)]
+
+    return edge_of_passing(solve, lo, hi, rel=rel, passing_above=False)

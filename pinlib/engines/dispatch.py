@@ -21,7 +21,7 @@ from pinlib.model.design import Bus, Design, load_design
 from pinlib.model.result import BusResult, DesignResult
 
 __all__ = ["ENGINES", "check_design", "check_file", "design_result", "engine",
-           "evaluate_bus"]
+           "evaluate_bus", "evaluate_couplings"]
 
 #: The engine module of each protocol; each has ``evaluate_bus(bus, design) -> BusResult``.
 ENGINES = {name: p.engine for name, p in PROTOCOLS.items()}
@@ -114,7 +114,8 @@ def check_design(design: Design) -> DesignResult:
     Returns
     -------
     DesignResult
-        One :class:`~pinlib.model.result.BusResult` per bus, in file order.
+        One :class:`~pinlib.model.result.BusResult` per bus, in file order, and one
+        :class:`~pinlib.model.result.CouplingResult` per ``[[coupling]]``.
 
     Notes
     -----
@@ -125,12 +126,55 @@ def check_design(design: Design) -> DesignResult:
         return design_result(design, [evaluate_bus(bus, design) for bus in design.buses])
 
 
-def design_result(design: Design, buses: list) -> DesignResult:
+def evaluate_couplings(design: Design, buses: list) -> list:
+    """The result of each ``[[coupling]]`` of the design
+    (:mod:`pinlib.engines.coupling`), from its buses' results; an error is placed at
+    the coupling's line of the design file.  A coupling whose victim or aggressor bus is
+    not among ``buses`` (a caller that evaluated some of them) is left out."""
+    if not design.couplings:
+        return []
+    from pinlib.engines import coupling
+
+    by_id = {b.id: b for b in buses}
+    out = []
+    for c in design.couplings:
+        if c.victim_bus not in by_id or (isinstance(c.aggressor, tuple)
+                                         and c.aggressor[0] not in by_id):
+            continue
+        try:
+            out.append(coupling.evaluate_coupling(c, by_id, design))
+        except PinlibError as err:
+            if err.file is not None:
+                raise
+            raise _coupling_located(err, c, design) from None
+    return out
+
+
+def _coupling_located(err: PinlibError, c, design: Design) -> PinlibError:
+    """An engine's error placed at the coupling's table: at its key where the error
+    names one (``parallel_length``), else at the table with the value named in the hint."""
+    from pinlib.model.design import RawCoupling
+
+    index = line_index(design.text) if design.text else {}
+    own = err.field in RawCoupling.model_fields
+    loc = c.loc + ((err.field,) if own else ())
+    hint = err.hint if own else M.MET_EVALUATING_BUS.format(bus=c.id, field=err.field or "?")
+    return type(err)(err.problem, file=str(design.path) if design.path else None,
+                     line=line_of(index, loc) or line_of(index, c.loc), field=dotted(loc),
+                     value=err.value, expected=err.expected, hint=hint)
+
+
+def design_result(design: Design, buses: list, couplings: list | None = None) -> DesignResult:
     """The result of ``design`` holding bus results evaluated by the caller (a widget
-    that solved a bus's lines once for its checks and its charts)."""
+    that solved a bus's lines once for its checks and its charts); its couplings are
+    evaluated from them unless given."""
+    buses = list(buses)
+    if couplings is None:
+        couplings = evaluate_couplings(design, buses)
     return DesignResult(design=design.title,
                         path=str(design.path) if design.path else None,
-                        warn_margin=design.warn_margin, buses=list(buses))
+                        warn_margin=design.warn_margin, buses=buses,
+                        couplings=list(couplings))
 
 
 def check_file(path: str | os.PathLike, library_folders=()) -> DesignResult:

@@ -135,6 +135,13 @@ class OpenDrainLimits:
         v_ol, i_ol, _ = i2c_std.sink_spec(self._i2c, vdd)
         return v_ol, i_ol
 
+    def spike_filter(self) -> tuple[float | None, str]:
+        """The inputs' spike suppression (tSP, SMBus's tSPIKE) and its source; None where
+        the mode's inputs need not filter (I2C Standard-mode, SMBus 100 kHz). [s]"""
+        if self._i2c is not None:
+            return self._i2c.t_sp, self._i2c.source_of("t_sp")
+        return self._smbus.t_spike, self._smbus.source_of("t_spike")
+
     # ------------------------------------------------------------------ defaults for pins
 
     def default_levels(self) -> tuple[Sourced, Sourced]:

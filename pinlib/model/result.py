@@ -33,6 +33,7 @@ __all__ = [
     "LineResult",
     "SegmentResult",
     "BusResult",
+    "CouplingResult",
     "DesignResult",
     "worst",
 ]
@@ -334,16 +335,61 @@ class BusResult(Group):
 
 
 @dataclass
+class CouplingResult(Group):
+    """The result of one ``[[coupling]]`` of the design: a fast line beside an open-drain
+    one.  It has the shape of a bus's result with no segments or lines (``id``, figures,
+    checks, notes, ``workings``, :meth:`all_checks`), so whatever lists the checks of
+    a design's buses lists a coupling's the same way (:meth:`DesignResult.results`).
+
+    ``id`` is ``"VICTIM<-AGGRESSOR"`` (``sensors.scl<-display.sclk``), ``protocol``
+    ``"coupling"``; ``workings`` holds the pair, the victim's and aggressor's models
+    and the noise waveforms (charts read them).
+    """
+
+    id: str = ""
+    victim: str = ""
+    aggressor: str = ""
+    protocol: str = "coupling"
+    workings: Any = field(default=None, repr=False, compare=False)
+
+    @property
+    def status(self) -> str:
+        return self.own_status()
+
+    @property
+    def segments(self) -> list:
+        return []
+
+    @property
+    def lines(self) -> list:
+        return []
+
+    def all_checks(self):
+        """Every check with where it sits: (None, None, check)."""
+        for c in self.checks:
+            yield None, None, c
+
+    def to_json(self) -> dict:
+        return {"id": self.id, "victim": self.victim, "aggressor": self.aggressor,
+                "status": self.status, **self._json_body()}
+
+
+@dataclass
 class DesignResult:
     design: str
     path: str | None = None
     buses: list[BusResult] = field(default_factory=list)
     warn_margin: float = 0.10
     notes: list[str] = field(default_factory=list)
+    couplings: list[CouplingResult] = field(default_factory=list)
 
     @property
     def status(self) -> str:
-        return worst(b.status for b in self.buses)
+        return worst(b.status for b in self.results())
+
+    def results(self) -> list:
+        """Every result of the design in file order: its buses, then its couplings."""
+        return [*self.buses, *self.couplings]
 
     def bus(self, bus_id: str) -> BusResult:
         for b in self.buses:
@@ -363,6 +409,8 @@ class DesignResult:
             "warn_margin": self.warn_margin,
             "buses": [b.to_json() for b in self.buses],
         }
+        if self.couplings:
+            out["couplings"] = [c.to_json() for c in self.couplings]
         if self.path:
             out["path"] = self.path
         if self.notes:

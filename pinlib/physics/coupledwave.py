@@ -33,7 +33,7 @@ from pinlib.physics.coupled import CoupledLine
 from pinlib.physics.guards import positive
 from pinlib.physics.lines.model import C0
 
-__all__ = ["EndLoads", "PairWaves", "coupled_waves"]
+__all__ = ["EndLoads", "PairWaves", "coupled_waves", "coupled_waves_batch"]
 
 _T = np.array([[1.0, 1.0], [1.0, -1.0]]) / np.sqrt(2.0)
 
@@ -67,16 +67,26 @@ class PairWaves:
     far: np.ndarray
 
 
-def _end(loads: EndLoads, nt: int, name: str):
+def _end(loads: EndLoads, nt: int, name: str, batch: int):
+    """Conductances, capacitances (each (B, 2)) and sources ((B, 2, nt)) of one end."""
     r = np.asarray(loads.r, dtype=float)
     c = np.asarray(loads.c, dtype=float)
-    if r.shape != (2,) or c.shape != (2,) or np.any(~(r > 0)) or np.any(~(c >= 0)):
+    if (r.shape[-1:] != (2,) or c.shape[-1:] != (2,) or r.ndim > 2 or c.ndim > 2
+            or np.any(~(r > 0)) or np.any(~(c >= 0))):
         raise InputError(M.PARAMETER_OUT_OF_RANGE.format(name=name), field=name,
                          value=(tuple(r.ravel()), tuple(c.ravel())),
                          expected="two resistances > 0 (inf for none) and two "
-                                  "capacitances >= 0")
+                                  "capacitances >= 0 (per batch member)")
+    r = np.broadcast_to(r, (batch, 2))
+    c = np.broadcast_to(c, (batch, 2))
     v = np.asarray(loads.v, dtype=float)
-    v = np.broadcast_to(v.reshape(2, -1) if v.size != 2 else v.reshape(2, 1), (2, nt))
+    if v.ndim <= 1 or (v.ndim == 2 and v.shape == (2, nt) and nt != 2):
+        v = v.reshape(2, -1)  # one source for every member
+    if v.ndim == 2 and v.shape[0] == 2 and v.shape != (batch, 2):
+        v = v[None]
+    elif v.ndim == 2:  # (B, 2): constant sources per member
+        v = v[:, :, None]
+    v = np.broadcast_to(v, (batch, 2, nt))
     g = np.where(np.isfinite(r), 1.0 / r, 0.0)
     return g, c, v
 
@@ -103,49 +113,83 @@ def coupled_waves(line: CoupledLine, length, t, near: EndLoads, far: EndLoads) -
     near, far : EndLoads
         Terminations at the two ends.
     """
-    length = float(positive(length, "length", "[m]"))
+    w = coupled_waves_batch(line, np.reshape(float(positive(length, "length", "[m]")), (1,)),
+                            t, near, far)
+    return PairWaves(w.t, w.near[0], w.far[0])
+
+
+def coupled_waves_batch(line: CoupledLine, length, t, near: EndLoads,
+                        far: EndLoads) -> PairWaves:
+    """:func:`coupled_waves` for B pairs at once, on one time grid.
+
+    ``line``'s fields and ``length`` broadcast to shape (B,); each :class:`EndLoads`
+    gives ``r`` and ``c`` of shape (2,) or (B, 2) and ``v`` of shape (2,), (2, nt),
+    (B, 2) or (B, 2, nt).  Returns :class:`PairWaves` whose ``near`` and ``far`` have
+    shape (B, 2, nt).
+    """
+    length = np.atleast_1d(positive(length, "length", "[m]")).astype(float)
     t = np.asarray(t, dtype=float)
     dt = float(t[1] - t[0]) if t.size > 1 else 0.0
-    z = np.array([float(line.z_even), float(line.z_odd)])
-    tau = length * np.sqrt([float(line.er_eff_even), float(line.er_eff_odd)]) / C0
+    ze, zo, ee, eo, length = np.broadcast_arrays(
+        np.asarray(line.z_even, float), np.asarray(line.z_odd, float),
+        np.asarray(line.er_eff_even, float), np.asarray(line.er_eff_odd, float), length)
+    z = np.stack([ze, zo], axis=-1).reshape(-1, 2)                       # (B, 2)
+    tau = (length[..., None] * np.sqrt(np.stack([ee, eo], axis=-1)) / C0).reshape(-1, 2)
     if not dt > 0 or dt > tau.min():
         raise InputError(M.PARAMETER_OUT_OF_RANGE.format(name="t"), field="t", value=dt,
                          expected=f"a uniform step > 0 and <= the shorter modal delay "
                                   f"{tau.min():.4g} s")
-    nt = t.size
-    g0, c0, vs0 = _end(near, nt, "near")
-    g1, c1, vs1 = _end(far, nt, "far")
-    zc = _T @ np.diag(z) @ _T
-    solve0 = np.linalg.inv(np.eye(2) + zc @ np.diag(g0 + c0 / dt))
-    solve1 = np.linalg.inv(np.eye(2) + zc @ np.diag(g1 + c1 / dt))
-    v_dc, i_dc = _dc(g0, vs0[:, 0], g1, vs1[:, 0])
-    # modal history at both ends: V + Z I as the wave leaving each end
-    out0 = np.empty((nt, 2))
-    out1 = np.empty((nt, 2))
-    init0 = _T @ v_dc + z * (_T @ i_dc)
-    init1 = _T @ v_dc + z * (_T @ -i_dc)
+    return _march(z, tau, t, dt, near, far)
+
+
+def _matvec(m, x):
+    return np.matmul(m, x[..., None])[..., 0]
+
+
+def _march(z, tau, t, dt, near: EndLoads, far: EndLoads) -> PairWaves:
+    """Step the modal characteristics of B pairs through the grid (see the module).
+
+    Both ends are stepped together (axis 0: near, far).  The history of the waves
+    leaving the ends is one flat buffer of (P + nt) rows of 2 x B x 2 values, its first
+    P rows the DC state (before the edge); a delay of ``tau = (k + f) dt`` reads the
+    other end's rows n - k - 1 and n - k at fixed weights.  The terminations' solve is
+    folded into constant matrices before the loop.
+    """
+    nb, nt = z.shape[0], t.size
+    g0, c0, vs0 = _end(near, nt, "near", nb)
+    g1, c1, vs1 = _end(far, nt, "far", nb)
+    g, k = np.stack([g0, g1]), np.stack([c0, c1]) / dt                   # (2, B, 2)
+    zc = np.einsum("ij,bj,jk->bik", _T, z, _T)                            # (B, 2, 2)
+    solve = np.linalg.inv(np.eye(2) + zc[None] * (g + k)[:, :, None, :])  # (2, B, 2, 2)
+    src = np.moveaxis(g[..., None] * np.stack([vs0, vs1]), -1, 0)        # (nt, 2, B, 2)
+    # v = solve (T a + zc (src + k vp)) = M a + S[n] + P vp
+    m = solve @ _T
+    zs = solve @ zc[None]
+    s_n = np.einsum("ebij,nebj->nebi", zs, src)
+    p = zs * k[:, :, None, :]
+    gk = g + k
+    v_dc, i_dc = _dc(g0, vs0[:, :, 0], g1, vs1[:, :, 0])
+    init = np.stack([v_dc @ _T + z * (i_dc @ _T), v_dc @ _T - z * (i_dc @ _T)])
     lag = tau / dt
-    v_near = np.empty((2, nt))
-    v_far = np.empty((2, nt))
-    vp0, vp1 = v_dc.copy(), v_dc.copy()
-    modes = np.arange(2)
+    width = 4 * nb
+    pad = int(np.ceil(lag.max())) + 2
+    h = np.zeros((pad + nt) * width)
+    h[:pad * width] = np.tile(init.ravel(), pad)
+    back = np.floor(-lag).astype(int)                  # row n + back, weight 1 - frac
+    frac = np.tile((-lag - back).ravel(), 2)
+    keep = 1.0 - frac
+    # each end reads the waves the other end sent
+    other = np.concatenate([np.arange(2 * nb, width), np.arange(2 * nb)])
+    base = np.tile(((back + pad) * width).ravel(), 2) + other
+    v_ends = np.empty((nt, 2, nb, 2))
+    vp = np.stack([v_dc, v_dc])
     for n in range(nt):
-        pos = n - lag
-        lo = np.floor(pos).astype(int)
-        frac = pos - lo
-        ok = lo >= 0
-        # waves arriving now: those that left the other end tau ago
-        a1 = np.where(ok, (1 - frac) * out1[np.maximum(lo, 0), modes]
-                      + frac * out1[np.clip(lo + 1, 0, max(n - 1, 0)), modes], init1)
-        a0 = np.where(ok, (1 - frac) * out0[np.maximum(lo, 0), modes]
-                      + frac * out0[np.clip(lo + 1, 0, max(n - 1, 0)), modes], init0)
-        e0, e1 = _T @ a1, _T @ a0
-        v0 = solve0 @ (e0 + zc @ (g0 * vs0[:, n] + c0 / dt * vp0))
-        v1 = solve1 @ (e1 + zc @ (g1 * vs1[:, n] + c1 / dt * vp1))
-        i0 = g0 * (vs0[:, n] - v0) - c0 / dt * (v0 - vp0)
-        i1 = g1 * (vs1[:, n] - v1) - c1 / dt * (v1 - vp1)
-        out0[n] = _T @ v0 + z * (_T @ i0)
-        out1[n] = _T @ v1 + z * (_T @ i1)
-        v_near[:, n], v_far[:, n] = v0, v1
-        vp0, vp1 = v0, v1
-    return PairWaves(t, v_near, v_far)
+        idx = base + n * width
+        a = (keep * h[idx] + frac * h[idx + width]).reshape(2, nb, 2)
+        v = _matvec(m, a) + s_n[n] + _matvec(p, vp)
+        i = src[n] - gk * v + k * vp
+        row = (pad + n) * width
+        h[row:row + width] = (v @ _T + z * (i @ _T)).ravel()
+        v_ends[n] = v
+        vp = v
+    return PairWaves(t, np.moveaxis(v_ends[:, 0], 0, -1), np.moveaxis(v_ends[:, 1], 0, -1))

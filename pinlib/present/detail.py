@@ -106,7 +106,11 @@ def _notes(bus: BusResult) -> list[str]:
 
 
 def _bus(b: BusResult, cols: int) -> list[str]:
-    out = [f"bus {b.id} ({humanize(b.protocol)}): {status_word(b.status)}"]
+    if b.protocol == "coupling":
+        head = f"coupling {b.victim} beside {b.aggressor}: {status_word(b.status)}"
+    else:
+        head = f"bus {b.id} ({humanize(b.protocol)}): {status_word(b.status)}"
+    out = [head]
     sources: dict[str, int] = {}
     out += _group(b, "", "  ", cols, sources)
     for s in b.segments:
@@ -136,7 +140,7 @@ def detail_lines(result, cols: int) -> list[str]:
                 f"{n['fail']} fail (warn below {result.warn_margin:.0%} margin)", cols)
     for note in result.notes:
         out += wrap(f"note: {note}", cols)
-    for b in result.buses:
+    for b in result.results():
         out.append("")
         out += _bus(b, cols)
     return out

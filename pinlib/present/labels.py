@@ -66,6 +66,18 @@ FIGURES: dict[str, str] = {
     "transmission_line": "Transmission line",
     "model": "Line model",
     "delay_to_edge_ratio": "Delay / edge time",
+    # couplings (a fast line beside an open-drain one)
+    "spacing": "Spacing (edge to edge)",
+    "parallel_length": "Parallel length",
+    "near_end_coefficient": "Near-end coefficient Kb",
+    "far_end_coefficient": "Far-end coefficient Kf",
+    "noise_level_low": "Level held low, with noise",
+    "noise_level_high": "Level held high, with noise",
+    "peak_noise": "Peak noise",
+    "minimum_spacing": "Minimum spacing",
+    "maximum_parallel_length": "Maximum parallel length",
+    "spacing_searched_from": "Spacing searched from",
+    "length_searched_to": "Length searched to",
 }
 
 #: Figure id -> a short label for a table's column head (symbols of the trade).
@@ -92,6 +104,9 @@ CHECKS: dict[str, str] = {
     "edge-time": "Edge time",
     "line-delay": "Line delay ≤ clock period",
     "bridge-gate-drive": "Translator gate drive",
+    "crosstalk-low": "Crosstalk held low",
+    "crosstalk-high": "Crosstalk held high",
+    "crosstalk-glitch": "Crosstalk glitch",
 }
 
 #: Words written in capitals (or as the trade writes them) wherever they appear in an id.

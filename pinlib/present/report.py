@@ -25,7 +25,7 @@ from pinlib.present.labels import check_label, humanize
 from pinlib.present.terminal import DEFAULT_WIDTH, status_word, wrap
 from pinlib.present.values import counts, format_value
 
-__all__ = ["format_text", "format_value", "problem_line", "bus_line", "counts",
+__all__ = ["format_text", "format_value", "problem_line", "bus_line", "coupling_line", "counts",
            "CAUTION_LINE", "MODES", "paint", "fit"]
 
 #: The caution in one line (the whole text heads ``--detail`` and the JSON).
@@ -172,8 +172,37 @@ def _gpio(bus: BusResult) -> list[str]:
     return parts
 
 
+def coupling_line(c) -> str:
+    """One coupling as one logical line: status, victim beside aggressor, the peak noise,
+    the minimum spacing against the design's, the maximum parallel length."""
+    head = f"{status_word(c.status)} {c.victim} beside {c.aggressor} (crosstalk)"
+    parts = []
+    peak = _fig_text(c, "peak_noise")
+    if peak:
+        parts.append(f"peak noise {peak}")
+    least = _bounded(c, "minimum_spacing", "spacing_searched_from", "or less")
+    parts.append(f"spacing {_fig_text(c, 'spacing')}, minimum {least}")
+    longest = _bounded(c, "maximum_parallel_length", "length_searched_to", "or more")
+    parts.append(f"parallel {_fig_text(c, 'parallel_length')}, maximum {longest}")
+    return f"{head}: {', '.join(parts)}"
+
+
+def _bounded(c, name: str, bound: str, beyond: str) -> str:
+    """A search's result as text: "— (none passes)" where there is none, "18 µm or less"
+    where it is the search's own bound."""
+    f, b = c.figures.get(name), c.figures.get(bound)
+    if f is None or f.value is None:
+        return "— (none passes)"
+    text = format_value(f.value, f.unit)
+    if b is not None and b.value is not None and math.isclose(f.value, b.value, rel_tol=1e-9):
+        text += f" {beyond}"
+    return text
+
+
 def bus_line(bus: BusResult) -> str:
     """One bus as one logical line: status, name, protocol and the figures that matter."""
+    if bus.protocol == "coupling":
+        return coupling_line(bus)
     head = f"{status_word(bus.status)} {bus.id} ({humanize(bus.protocol)})"
     if bus.segments:
         parts = []
@@ -195,7 +224,7 @@ def bus_line(bus: BusResult) -> str:
 def _problems(result: DesignResult) -> list[tuple[BusResult, str | None, str | None, Check]]:
     out = []
     for status in ("fail", "warn"):
-        for b in result.buses:
+        for b in result.results():
             for seg, signal, c in b.all_checks():
                 if c.status == status:
                     out.append((b, seg, signal, c))
@@ -207,6 +236,9 @@ def _closing(result: DesignResult) -> str:
     buses = len(result.buses)
     text = (f"{status_word(result.status)} {result.design}: {n['pass']} pass, {n['warn']} warn, "
             f"{n['fail']} fail on {buses} bus{'es' if buses != 1 else ''}")
+    pairs = len(result.couplings)
+    if pairs:
+        text += f" and {pairs} coupling{'s' if pairs != 1 else ''}"
     return text
 
 
@@ -225,7 +257,7 @@ def _summary(result: DesignResult, cols: int, more: str | None, quiet: bool) -> 
         for b, seg, signal, c in problems:
             out += wrap(problem_line(b, seg, signal, c), cols)
         out.append("")
-    for b in result.buses:
+    for b in result.results():
         out += wrap(bus_line(b), cols)
     for note in result.notes:
         out += wrap(f"note: {note}", cols)

@@ -33,7 +33,7 @@ def format_value(value, unit: str) -> str:
 def counts(result: DesignResult) -> dict[str, int]:
     """Checks by status over the whole design: {"pass": n, "warn": n, "fail": n}."""
     out = {s: 0 for s in ("pass", "warn", "fail")}
-    for b in result.buses:
+    for b in result.results():
         for _, _, c in b.all_checks():
             out[c.status] = out.get(c.status, 0) + 1
     return out

@@ -82,7 +82,7 @@ def check_one(path, library_folders=(), against_snapshots: bool = False,
         out.error = err.message
         return out
     out.status = result.status
-    for b in result.buses:
+    for b in result.results():
         for _, _, c in b.all_checks():
             if c.status in out.counts:
                 out.counts[c.status] += 1

@@ -17,8 +17,8 @@ from pathlib import Path
 
 from tests.bench.common import Result, format_ratio, machine
 
-MODULES = ["waveform", "tree", "candidates", "montecarlo", "opendrain", "library", "cli",
-           "report", "design", "many", "scaling",
+MODULES = ["waveform", "tree", "crosstalk", "candidates", "montecarlo", "opendrain",
+           "library", "cli", "report", "design", "many", "scaling",
            "widgets",
            "browser"]
 README = Path(__file__).resolve().parents[2] / "README.md"

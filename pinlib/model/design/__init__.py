@@ -17,6 +17,7 @@ The package, each module importing only those above it:
 - :mod:`.objects`: the resolved objects the engines read (:class:`Bus`, :class:`Line`...);
 - :mod:`.resolve`: parts, geometries, sections and cables resolved from the raw tables;
 - :mod:`.buses`: an open-drain or push-pull bus built and checked;
+- :mod:`.coupling`: the ``[[coupling]]`` tables (a fast line beside an open-drain one);
 - :mod:`.build`: :class:`Design` and pass 2 over the whole file;
 - :mod:`.load`: :func:`load_design` and :func:`design_from_text`.
 """
@@ -25,6 +26,10 @@ from __future__ import annotations
 
 from pinlib.model.design.build import (  # noqa: F401
     Design,
+)
+from pinlib.model.design.coupling import (  # noqa: F401
+    Coupling,
+    Edge,
 )
 from pinlib.model.design.load import (  # noqa: F401
     design_from_text,
@@ -56,8 +61,10 @@ from pinlib.model.design.raw import (  # noqa: F401
     RawBoard,
     RawBus,
     RawCable,
+    RawCoupling,
     RawDesign,
     RawDevice,
+    RawEdge,
     RawGeometry,
     RawRouteStretch,
     RawSection,
@@ -81,6 +88,8 @@ __all__ = [
     "Segment",
     "Line",
     "Bus",
+    "Coupling",
+    "Edge",
     "Design",
     "load_design",
     "design_from_text",

@@ -13,6 +13,7 @@ from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import line_index
 from pinlib.library.loader import Library
 from pinlib.model.design.buses import _one_part_per_reference, _open_drain_bus, _push_pull_bus
+from pinlib.model.design.coupling import Coupling, resolve_couplings
 from pinlib.model.design.objects import Bus, Device, Geometry
 from pinlib.model.design.raw import MODES, RawBus, RawDesign
 from pinlib.model.design.resolve import _geometries, _Resolver
@@ -29,6 +30,7 @@ class Design:
     distribution: str = "uniform"
     description: str | None = None
     text: str = ""
+    couplings: tuple[Coupling, ...] = ()
 
     def bus(self, bus_id: str) -> Bus:
         for b in self.buses:
@@ -68,8 +70,10 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict,
     if unknown:
         raise DesignError(M.NO_SUCH_REFERENCE, field="swap",
                           value=sorted(unknown)[0], file=fname)
+    couplings = resolve_couplings(raw.coupling, buses, r.geometries, r.err)
     design = Design(raw.title, Path(path) if path else None, tuple(buses), r.geometries,
-                    library, raw.warn_margin, raw.distribution, raw.description, text)
+                    library, raw.warn_margin, raw.distribution, raw.description, text,
+                    couplings)
     object.__setattr__(design, "_raw", raw)
     object.__setattr__(design, "_index", index)
     return design

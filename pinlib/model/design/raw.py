@@ -183,6 +183,37 @@ class RawBoard(_Raw):
     geometry: dict[str, RawGeometry] = Field(default_factory=dict)
 
 
+# ---------------------------------------------------------------- coupling (issue 17)
+# Resolved in :mod:`pinlib.model.design.coupling`.
+
+
+class RawEdge(_Raw):
+    """A described aggressor: its swing, 10-90 % edge time and source resistance."""
+
+    swing: _unit("V", 0.0, 100.0)
+    edge_time: _unit("s", 1e-12, 1e-3)
+    source_resistance: _unit("Ω", 0.1, 1e6)
+    load_capacitance: Capacitance = 0.0
+
+
+class RawCoupling(_Raw):
+    """Two traces side by side: the victim (an open-drain line), the aggressor (a line of
+    the design or a described edge), their gap and the length they run together."""
+
+    victim: Annotated[str, Field(description="the open-drain line, 'BUS.SIGNAL', e.g. "
+                                             "'i2c0.scl'")]
+    segment: Annotated[str | None, Field(description="the victim bus's segment the run is "
+                                                     "in (default: its first)")] = None
+    aggressor: Annotated[str | RawEdge, Field(
+        description="a routed push-pull line, 'BUS.SIGNAL' (e.g. 'spi0.sclk'), or a "
+                    "described edge {swing, edge_time, source_resistance}")]
+    spacing: Dimension
+    parallel_length: _unit("m", 1e-4, 10.0)
+    geometry: str | RawGeometry
+    spacing_tolerance: Tolerance | None = None
+    length_tolerance: Tolerance | None = None
+
+
 class RawDesign(_Raw):
     format: Literal["pinlib.design/1"]
     title: str
@@ -192,3 +223,4 @@ class RawDesign(_Raw):
     distribution: Literal["uniform", "normal"] = "uniform"
     board: RawBoard = RawBoard()
     bus: tuple[RawBus, ...] = ()
+    coupling: tuple[RawCoupling, ...] = ()

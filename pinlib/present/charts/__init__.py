@@ -12,13 +12,17 @@ unit, e.g. ``"Bus capacitance Cb (pF)"``, with the values scaled to that unit.
 
 Modules: ``style`` (palette, roles, font, text measures), ``frame`` (checked inputs,
 display scales, axes, legends, titles), ``render`` (:func:`spec`, :func:`to_svg`), and
-one module per chart: ``pullup``, ``edges``, ``waves``, ``budget``, ``histogram``.
+one module per chart: ``pullup``, ``edges``, ``waves``, ``budget``, ``histogram``,
+``crosstalk``.
 """
 
 from __future__ import annotations
 
 from pinlib.present.charts.budget import (  # noqa: F401
     timing_budget,
+)
+from pinlib.present.charts.crosstalk import (  # noqa: F401
+    noise_vs_spacing,
 )
 from pinlib.present.charts.edges import (  # noqa: F401
     edge_vs_load,
@@ -93,6 +97,7 @@ __all__ = [
     "STATUS_COLOURS",
     "display_scale",
     "pullup_window",
+    "noise_vs_spacing",
     "edge_vs_load",
     "waveforms",
     "timing_budget",

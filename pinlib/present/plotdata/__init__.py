@@ -27,7 +27,7 @@ No altair here: this module is importable with the core dependencies.
 
 Modules: ``common`` (the engine's workings of a bus, display constants), ``window``
 (the pull-up window), ``lines`` (edge against load, waveforms), ``budget`` (the SPI
-timing budget).
+timing budget), ``coupling`` (a coupling's noise against spacing, its waveforms).
 """
 
 from __future__ import annotations
@@ -40,6 +40,12 @@ from pinlib.present.plotdata.budget import (  # noqa: F401
 from pinlib.present.plotdata.common import (  # noqa: F401
     line_analyses,
     workings,
+)
+from pinlib.present.plotdata.coupling import (  # noqa: F401
+    NoiseSweep,
+    NoiseWaves,
+    noise_vs_spacing_data,
+    noise_waveform_data,
 )
 from pinlib.present.plotdata.lines import (  # noqa: F401
     EdgeLoadData,
@@ -65,5 +71,9 @@ __all__ = [
     "edge_vs_load_data",
     "waveform_data",
     "timing_budget_data",
+    "NoiseSweep",
+    "NoiseWaves",
+    "noise_vs_spacing_data",
+    "noise_waveform_data",
 ]
 

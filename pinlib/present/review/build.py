@@ -7,7 +7,7 @@ from dataclasses import dataclass, field
 
 from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS, PUSH_PULL_PROTOCOLS
 from pinlib.model.result import DesignResult
-from pinlib.present.review.charts import _pullup_charts, _push_pull_charts
+from pinlib.present.review.charts import _coupling_charts, _pullup_charts, _push_pull_charts
 from pinlib.present.review.draw import ReviewChart, _Keys
 from pinlib.present.review.html import _Html
 from pinlib.present.review.markdown import _Markdown
@@ -94,6 +94,8 @@ def build_review(design, result: DesignResult, *, changes=None, mc=None) -> Revi
             _pullup_charts(bus, design, br, keys, charts)
         elif bus.protocol in PUSH_PULL_PROTOCOLS:
             _push_pull_charts(bus, design, br, keys, charts)
+    for cr in result.couplings:
+        _coupling_charts(cr, keys, charts)
     mc_charts, mc_entries = _mc_charts(mc, keys) if mc is not None else ([], [])
     parts = snapshot(design, result).get("parts", {})
     return Review(design, result, changes, mc, charts, mc_charts, mc_entries, parts)

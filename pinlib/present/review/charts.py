@@ -1,6 +1,7 @@
 """The charts of each bus of a design review: the pull-up windows of an open-drain bus;
 per push-pull line and driver, edge time against load and the far-end waveforms; the
-timing budget of an SPI bus."""
+timing budget of an SPI bus; per coupling, the noise against spacing and the victim's
+noise waveforms."""
 
 from __future__ import annotations
 
@@ -116,3 +117,46 @@ def _push_pull_charts(bus, design, result: BusResult, keys, charts):
                 tb.rows, available=tb.available, margins=tb.margins, status=tb.status,
                 title=title, subtitle=f"SPI mode {bus.spi_mode}, period "
                                       f"{_f(tb.period, 's')}")))
+
+
+def _coupling_charts(result, keys, charts):
+    """The noise against spacing and the victim's waveforms of one coupling result."""
+    from pinlib.present import charts as ch
+    from pinlib.present import plotdata
+
+    place = ("bus", result.id)
+    title = f"Crosstalk against spacing: {result.victim} beside {result.aggressor}"
+    key = keys(result.victim, result.aggressor, "noise-vs-spacing")
+    try:
+        d = plotdata.noise_vs_spacing_data(result)
+        wv = plotdata.noise_waveform_data(result)
+    except PinlibError as err:
+        charts.setdefault(place, []).append(
+            ReviewChart(key, "noise-vs-spacing", title, "", None, err.message))
+        return
+    least = ("no spacing in the models' range passes" if d.minimum_spacing is None
+             else f"the minimum spacing {_f(d.minimum_spacing, 'm')}")
+    caption = (f"Peak noise on the victim (the largest excursion from its held level at "
+               f"any receiver) against the gap, for the design's {_f(d.length, 'm')} run; "
+               f"each point is a spacing the engine solved in time. Shaded: the noise that "
+               f"keeps a held-low receiver below VIL and a held-high one above VIH "
+               f"({_f(d.allowed, 'V')}); the checks also weigh how long a crossing lasts "
+               f"against tSP. Dashed: {least}. Diamond: the design, "
+               f"{_f(d.design_peak, 'V')} at {_f(d.design_spacing, 'm')}.")
+    charts.setdefault(place, []).append(_draw(
+        key, "noise-vs-spacing", title, caption,
+        lambda d=d, title=title: ch.noise_vs_spacing(
+            d.spacing, d.peak, allowed=d.allowed, design_spacing=d.design_spacing,
+            design_peak=d.design_peak, minimum_spacing=d.minimum_spacing, title=title,
+            subtitle=f"parallel length {_f(d.length, 'm')}")))
+    title = f"Victim noise: {result.victim} beside {result.aggressor}"
+    caption = (f"The victim's voltage at both ends of the run, held low and held high, "
+               f"each for the aggressor's edge (rising or falling: the same noise, its sign "
+               f"turned) that pushes it toward its threshold. Shaded: between VIL "
+               f"{_f(wv.v_il, 'V')} and VIH {_f(wv.v_ih, 'V')}; dotted: VDD "
+               f"{_f(wv.vdd, 'V')}.")
+    charts[place].append(_draw(
+        keys(result.victim, result.aggressor, "noise-waveforms"), "waveforms", title,
+        caption, lambda wv=wv, title=title: ch.waveforms(
+            wv.t, wv.traces, v_il=wv.v_il, v_ih=wv.v_ih, vdd=wv.vdd, title=title,
+            subtitle="at the victim's receivers")))

@@ -19,8 +19,8 @@ class ReviewChart:
     key : str
         A name unique in the review, safe as a file name (``03-flash-sclk-u1-edges``).
     kind : str
-        ``pullup-window``, ``edge-vs-load``, ``waveforms``, ``timing-budget`` or
-        ``histogram``.
+        ``pullup-window``, ``edge-vs-load``, ``waveforms``, ``timing-budget``,
+        ``noise-vs-spacing`` or ``histogram``.
     title, caption : str
         What it shows, and how to read it.
     svg : str or None

@@ -26,6 +26,7 @@ from pinlib.present.review.text import (
     _check_cells,
     _counts,
     _groups,
+    _heading,
     _margin,
     _message,
     _no_snapshot_text,
@@ -120,7 +121,7 @@ class _Html:
         self.nav()
         self.w("<main>")
         self.summary()
-        for b in res.buses:
+        for b in res.results():
             self.bus(b)
         if r.mc is not None:
             self.monte_carlo()
@@ -133,9 +134,9 @@ class _Html:
 
     def nav(self):
         items = ['<li><a href="#summary">Summary</a></li>']
-        for b in self.r.result.buses:
-            items.append(f'<li><a href="#bus-{_slug(b.id)}">Bus {_e(b.id)} '
-                         f"({_e(b.protocol)})</a> {_badge(b.status)}</li>")
+        for b in self.r.result.results():
+            items.append(f'<li><a href="#bus-{_slug(b.id)}">{_e(_heading(b))}</a> '
+                         f"{_badge(b.status)}</li>")
         if self.r.mc is not None:
             items.append('<li><a href="#monte-carlo">Monte Carlo</a></li>')
         items += ['<li><a href="#parts">Parts and the provenance of their values</a></li>',
@@ -149,7 +150,7 @@ class _Html:
                "<th scope=\"col\">Status</th><th scope=\"col\">Pass</th>"
                "<th scope=\"col\">Warn</th><th scope=\"col\">Fail</th>"
                "<th scope=\"col\">Charts</th></tr></thead>", "<tbody>")
-        for b in self.r.result.buses:
+        for b in self.r.result.results():
             c = _bus_counts(b)
             n = sum(len(self.r.charts.get(place, [])) for *_, place in _groups(b))
             self.w(f'<tr class="r-{b.status}"><td><a href="#bus-{_slug(b.id)}">{_e(b.id)}</a>'
@@ -166,7 +167,7 @@ class _Html:
     def bus(self, b: BusResult):
         anchor = f"bus-{_slug(b.id)}"
         design_bus = next((x for x in self.r.design.buses if x.id == b.id), None)
-        heading = f"Bus {b.id} ({b.protocol})"
+        heading = _heading(b)
         self.w(f'<section id="{anchor}" aria-labelledby="h-{anchor}">',
                f'<h2 id="h-{anchor}">{_e(heading)} {_badge(b.status)}</h2>')
         if design_bus is not None and design_bus.title:

@@ -26,6 +26,7 @@ from pinlib.present.review.text import (
     _check_cells,
     _counts,
     _groups,
+    _heading,
     _margin,
     _message,
     _route_of,
@@ -131,14 +132,14 @@ class _Markdown:
                f"(warning below {res.warn_margin:.0%} margin).", "")
         self.w("## Summary", "")
         rows = []
-        for b in res.buses:
+        for b in res.results():
             c = _bus_counts(b)
             rows.append([_m(b.id), _m(b.protocol), f"**{_MARK[b.status]}**", str(c["pass"]),
                          str(c["warn"]), str(c["fail"])])
         self.w(*_table(["Bus", "Protocol", "Status", "Pass", "Warn", "Fail"], rows))
         for n in res.notes:
             self.w(f"- {_mt(n)}")
-        for b in res.buses:
+        for b in res.results():
             self.bus(b)
         if r.mc is not None:
             self.monte_carlo()
@@ -149,7 +150,7 @@ class _Markdown:
 
     def bus(self, b: BusResult):
         design_bus = next((x for x in self.r.design.buses if x.id == b.id), None)
-        self.w(f"## Bus {_mt(b.id)} ({b.protocol}): {_MARK[b.status]}", "")
+        self.w(f"## {_mt(_heading(b))}: {_MARK[b.status]}", "")
         if design_bus is not None and design_bus.title:
             self.w(f"*{_mt(design_bus.title)}*", "")
         for head, _, grp, place in _groups(b):

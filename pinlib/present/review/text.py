@@ -38,9 +38,17 @@ def _message(c: Check) -> str:
     return text
 
 
+def _heading(b) -> str:
+    """A bus's or a coupling's heading: ``Bus flash (spi)``, ``Coupling sensors.scl beside
+    display.sclk``."""
+    if b.protocol == "coupling":
+        return f"Coupling {b.victim} beside {b.aggressor}"
+    return f"Bus {b.id} ({b.protocol})"
+
+
 def _counts(result: DesignResult) -> dict:
     counts = {s: 0 for s in ("pass", "warn", "fail")}
-    for b in result.buses:
+    for b in result.results():
         for _, _, c in b.all_checks():
             counts[c.status] += 1
     return counts

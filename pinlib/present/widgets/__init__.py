@@ -36,7 +36,8 @@ Modules
 ``common`` (layouts, quantity fields, option lists, the chart view, the panel base class),
 ``markup`` (badges, notes, tables of figures and checks), ``designdoc`` (design text and
 trace controls), and one module per workbench: ``busbuilder`` (01), ``lineexplorer`` (02),
-``spibudget`` (03), ``recorder`` and ``ibisimporter`` (04), ``swaps`` (05).  Labels of
+``spibudget`` (03), ``recorder`` and ``ibisimporter`` (04), ``swaps`` (05), ``crosstalk``
+(06).  Labels of
 figures and checks come from :mod:`pinlib.present.labels`.
 
 This package imports ipywidgets, and altair through :mod:`pinlib.present.charts`; the command line
@@ -51,6 +52,7 @@ need("ipywidgets", extra="notebook", feature="the workbook widgets")
 
 from pinlib.present.widgets.busbuilder import BenchReading, BusBuilder  # noqa: E402
 from pinlib.present.widgets.common import ChartView, StaticView, find_file  # noqa: E402
+from pinlib.present.widgets.crosstalk import CrosstalkExplorer  # noqa: E402
 from pinlib.present.widgets.ibisimporter import IbisImporter  # noqa: E402
 from pinlib.present.widgets.lineexplorer import LineExplorer  # noqa: E402
 from pinlib.present.widgets.markup import checks_table, figures_table  # noqa: E402
@@ -69,6 +71,7 @@ __all__ = [
     "PartRecorder",
     "IbisImporter",
     "SwapExplorer",
+    "CrosstalkExplorer",
     "find_file",
     "figures_table",
     "checks_table",

@@ -34,7 +34,7 @@ def parse_change_threshold(text) -> float:
 
 def _groups(result: dict):
     """Every group of a result JSON with its path: bus, segment (``bus/seg``), line
-    (``bus/signal``)."""
+    (``bus/signal``), coupling (its id, ``victim<-aggressor``)."""
     for bus in result.get("buses", ()):
         bid = bus.get("id", "?")
         yield bid, bus
@@ -42,6 +42,8 @@ def _groups(result: dict):
             yield f"{bid}/{seg.get('id', '?')}", seg
         for line in bus.get("lines", ()) or ():
             yield f"{bid}/{line.get('signal', '?')}", line
+    for pair in result.get("couplings", ()) or ():
+        yield pair.get("id", "?"), pair
 
 
 def _checks(result: dict) -> dict[tuple, dict]:

@@ -174,8 +174,8 @@ class McResult:
             lines.append("  no toleranced parameter: every board is the nominal one")
         if self.board is not None:
             lines.append(f"  all sampled buses pass on {_pct(self.board)}")
-        for bus, y in self.buses.items():
-            lines.append(f"  bus {bus}: {_pct(y)}")
+        for bus, y in self.buses.items():  # a coupling's id holds "<-"
+            lines.append(f"  {'coupling' if '<-' in bus else 'bus'} {bus}: {_pct(y)}")
         rows = [c for c in self.checks if c.varies or c.passes.passes < c.passes.n]
         rows.sort(key=lambda c: (c.passes.passes, _low(c)))
         shown = rows[:limit] if limit else rows

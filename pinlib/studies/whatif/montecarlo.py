@@ -15,6 +15,7 @@ from pinlib.engines import pptable
 from pinlib.engines.opendrain import batch as ob
 from pinlib.model.design import Design
 from pinlib.studies.whatif.checknames import _names, _not_sampled
+from pinlib.studies.whatif.couplingmc import CouplingRun, coupling_parameters
 from pinlib.studies.whatif.mcresult import McCheck, McResult
 from pinlib.studies.whatif.sensitivity import _sensitivities
 from pinlib.studies.whatif.tally import _Tally
@@ -79,6 +80,11 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
     u_kept = np.empty((kept, len(params)))
     run = _Run(design, nominal, collected, params, kept, progress)
     run.prepare_tables(n)
+    # the couplings' spacings and lengths: a stream of their own
+    cparams = coupling_parameters(design)
+    crun = CouplingRun(design, nominal, cparams, kept, run.span)
+    rng_c = np.random.default_rng(ss.spawn(1)[0])
+    uc_kept = np.empty((kept, len(cparams)))
     bar = progress_bar(n, desc="Monte Carlo", unit="board", enabled=progress)
     with bar:
         for start in range(0, n, chunk):
@@ -89,12 +95,24 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
             if start < kept:
                 u_kept[start:start + m] = u[:kept - start]
             run.add_chunk(u, start, m)
+            if crun.couplings:
+                uc = draw(rng_c, m, len(cparams), design.distribution)
+                if start < kept:
+                    uc_kept[start:start + m] = uc[:kept - start]
+                run.add_coupling_chunk(crun, uc, start, m)
             del u
             bar.update(m)
     checks, buses = _checks_and_yields(run, u_kept, n)
-    board = Yield(run.board_ok, n, wilson_interval(run.board_ok, n)) if run.stores else None
-    return McResult(design.title, n, int(ss.entropy), design.distribution, params, checks, buses,
-                    board, u_kept, _run_notes(run, n))
+    for c in crun.couplings:
+        st = crun.stores.get(c.id)
+        if st is not None:
+            fits = _sensitivities(uc_kept, st.margin, cparams)
+            checks += _bus_checks(c.id, st, fits, n, kept)
+            buses[c.id] = Yield(st.bus_ok, n, wilson_interval(st.bus_ok, n))
+    stored = run.stores or crun.stores
+    board = Yield(run.board_ok, n, wilson_interval(run.board_ok, n)) if stored else None
+    return McResult(design.title, n, int(ss.entropy), design.distribution, params + cparams,
+                    checks, buses, board, np.hstack([u_kept, uc_kept]), _run_notes(run, n))
 
 
 def _checked_size(n, chunk: int) -> int:
@@ -158,6 +176,19 @@ class _Run:
             del bb
         if chunk_ok is not None:
             self.board_ok += int(np.count_nonzero(chunk_ok))
+        self._last_ok = chunk_ok
+
+    def add_coupling_chunk(self, crun: CouplingRun, uc: np.ndarray, start: int,
+                           m: int) -> None:
+        """Count the couplings of a chunk already counted for its buses: a board passes
+        only where its buses and its couplings do."""
+        ok = crun.add_chunk(uc, start, m)
+        if ok is None:
+            return
+        if self.stores:  # take the chunk's coupling failures off the boards counted
+            self.board_ok -= int(np.count_nonzero(self._last_ok & ~ok))
+        else:
+            self.board_ok += int(np.count_nonzero(ok))
 
     def _batch(self, bus, scen: Sampled, m: int):
         """One chunk of a bus evaluated as a batch; None for a bus the run does not sample."""

@@ -1,0 +1,91 @@
+"""The arrays the crosstalk charts draw, read from a coupling result's ``workings``
+(:class:`pinlib.engines.coupling.CouplingWorkings`): the engine solved every spacing
+drawn here while it searched for the minimum spacing; nothing is solved again."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
+
+__all__ = ["NoiseSweep", "noise_vs_spacing_data", "NoiseWaves", "noise_waveform_data"]
+
+
+def _workings(result):
+    w = getattr(result, "workings", None)
+    if w is None or not hasattr(w, "sweep"):
+        raise InputError(M.NO_COUPLING_WORKINGS, field="result",
+                         value=getattr(result, "id", None),
+                         expected="a coupling result from pinlib check")
+    return w
+
+
+def _excursion(noise: dict, vdd: float) -> float:
+    """The largest excursion from the held level at any receiver. [V]"""
+    return max(abs(n.level - (0.0 if held == "low" else vdd))
+               for (held, _), n in noise.items())
+
+
+@dataclass(frozen=True)
+class NoiseSweep:
+    """Peak noise against spacing at the design's parallel length.
+
+    ``spacing`` and ``peak`` [m], [V] sorted by spacing; ``allowed`` the largest
+    excursion that keeps every receiver on its side of VIL (held low) and VIH (held
+    high) [V]; the design's ``design_spacing`` and ``design_peak``; ``minimum_spacing``
+    (None where none passes) [m]; ``length`` [m].
+    """
+
+    spacing: np.ndarray
+    peak: np.ndarray
+    allowed: float
+    design_spacing: float
+    design_peak: float
+    minimum_spacing: float | None
+    length: float
+
+
+def noise_vs_spacing_data(result) -> NoiseSweep:
+    """The sweep the engine solved for a coupling result (see :class:`NoiseSweep`)."""
+    w = _workings(result)
+    v = w.victim
+    items = sorted(w.sweep.items())
+    spacing = np.array([s for s, _ in items])
+    peak = np.array([_excursion(n, v.vdd) for _, n in items])
+    lows = [x for e, x in v.vil.items() if x is not None and (("low", e) in w.noise)]
+    highs = [v.vdd - x for e, x in v.vih.items() if x is not None and (("high", e) in w.noise)]
+    allowed = min(lows + highs)
+    return NoiseSweep(spacing, peak, float(allowed), w.coupling.spacing,
+                      _excursion(w.noise, v.vdd), w.minimum_spacing, w.coupling.length)
+
+
+@dataclass(frozen=True)
+class NoiseWaves:
+    """The victim's voltage at each end, held low and held high, at the design point:
+    ``t`` [s], ``traces`` label -> [V], the thresholds ``v_il``, ``v_ih`` and ``vdd``
+    [V]. Each trace is drawn for the aggressor's edge (rising or falling: the same
+    noise, its sign turned) that pushes it toward its threshold, as the checks take it."""
+
+    t: np.ndarray
+    traces: dict
+    v_il: float
+    v_ih: float
+    vdd: float
+
+
+def noise_waveform_data(result) -> NoiseWaves:
+    """The victim's waveforms a coupling result carries (see :class:`NoiseWaves`)."""
+    w = _workings(result)
+    v = w.victim
+    traces = {}
+    for (held, end), wave in w.waves.items():
+        a = np.asarray(wave)
+        dev = a - a[0]
+        worse = dev.max() >= -dev.min() if held == "low" else -dev.min() >= dev.max()
+        traces[f"held {held}, {end} end"] = a if worse else a[0] - dev
+    vil = min(x for x in v.vil.values() if x is not None)
+    vih = max(x for x in v.vih.values() if x is not None)
+    return NoiseWaves(np.asarray(w.t), traces, float(vil), float(vih), float(v.vdd))

@@ -1,0 +1,194 @@
+"""Workbench 06: crosstalk onto a slow line (:class:`CrosstalkExplorer`)."""
+
+from __future__ import annotations
+
+from dataclasses import replace
+
+import ipywidgets as W
+
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError, PinlibError
+from pinlib.core.quantity import format_si
+from pinlib.engines.coupling import evaluate_coupling
+from pinlib.engines.dispatch import evaluate_bus
+from pinlib.model.design import Edge, load_design
+from pinlib.present import charts, plotdata
+from pinlib.present.widgets.common import (
+    ChartView,
+    StaticView,
+    _closest_option,
+    _Panel,
+    block_layout,
+    field_layout,
+    find_file,
+    heading,
+    style,
+    toggle_layout,
+)
+from pinlib.present.widgets.markup import (
+    caution_html,
+    checks_table,
+    error_html,
+    figures_table,
+    notes_html,
+    status_line,
+)
+
+__all__ = ["CrosstalkExplorer"]
+
+#: The slider positions (common practice, no source: a board's usual gaps, runs, edges).
+SPACINGS = (0.05e-3, 0.075e-3, 0.1e-3, 0.15e-3, 0.2e-3, 0.25e-3, 0.3e-3, 0.4e-3, 0.5e-3,
+            0.75e-3, 1e-3, 1.5e-3, 2e-3)
+LENGTHS = (0.01, 0.02, 0.03, 0.04, 0.06, 0.08, 0.1, 0.15, 0.2, 0.3, 0.5)
+EDGES = (0.2e-9, 0.3e-9, 0.5e-9, 0.75e-9, 1e-9, 1.5e-9, 2e-9, 3e-9, 5e-9, 10e-9)
+
+
+def _options(values, unit: str, own: float) -> list[tuple[str, float]]:
+    """Slider options: the usual values and the design's own."""
+    got = sorted(set(values) | {float(own)})
+    return [(format_si(v, unit), v) for v in got]
+
+
+class CrosstalkExplorer(_Panel):
+    """One ``[[coupling]]`` of a design: move the spacing, the parallel length and the
+    aggressor's edge and watch the victim's noise.
+
+    The design's buses are evaluated once (the victim's pull-up, sink and receivers, the
+    aggressor's driver); each change evaluates the coupling again
+    (:func:`pinlib.engines.coupling.evaluate_coupling`): its checks, the minimum spacing
+    and maximum length, the noise against spacing and the victim's waveforms.
+
+    Parameters
+    ----------
+    path : path
+        The design file (relative to the working folder or a folder above it).
+    coupling : int
+        Which ``[[coupling]]`` of the file (0: the first).
+
+    Settings for :meth:`set` (SI units): ``spacing``, ``length``, ``edge_time`` (the
+    aggressor's 10-90 % edge; its swing and source resistance stay the design's),
+    ``show`` (the waveforms drawn: ``"both"``, ``"held low"`` or ``"held high"``; the
+    chart only, nothing is solved again).
+
+    Attributes
+    ----------
+    design, result : the design and the coupling's CouplingResult.
+    figures : dict of str to Figure
+    sweep, waves : NoiseSweep, NoiseWaves
+        What the two charts draw.
+    noise_chart, wave_chart : ChartView
+    """
+
+    def __init__(self, path="workbooks/designs/demo-board.toml", *, coupling: int = 0):
+        super().__init__()
+        self.design = load_design(find_file(path))
+        if not 0 <= coupling < len(self.design.couplings):
+            raise InputError(M.NO_SUCH_COUPLING, field="coupling", value=coupling,
+                             expected=f"0 to {len(self.design.couplings) - 1}"
+                             if self.design.couplings else "a design with [[coupling]]")
+        self.coupling = self.design.couplings[coupling]
+        needed = {self.coupling.victim_bus}
+        if not isinstance(self.coupling.aggressor, Edge):
+            needed.add(self.coupling.aggressor[0])
+        self.buses = {b.id: evaluate_bus(b, self.design) for b in self.design.buses
+                      if b.id in needed}
+        first = evaluate_coupling(self.coupling, self.buses, self.design)
+        self.aggressor = first.workings.aggressor
+        self.result = None
+        self.figures: dict = {}
+        self.sweep = self.waves = None
+        c = self.coupling
+        self.spacing = self._slider("Spacing", _options(SPACINGS, "m", c.spacing), c.spacing)
+        self.length = self._slider("Parallel length", _options(LENGTHS, "m", c.length),
+                                   c.length)
+        edge = self.aggressor.edge_time
+        self.edge_time = self._slider("Aggressor edge", _options(EDGES, "s", edge), edge)
+        self.show = W.ToggleButtons(options=["both", "held low", "held high"], value="both",
+                                    description="Show", style=style(button_width="80px"),
+                                    layout=toggle_layout())
+        self.show.observe(lambda _c: self._draw_waves(), names="value")
+        self._choice("show", self.show)
+        self.noise_chart = ChartView()
+        self.wave_chart = ChartView()
+        self.figures_html = W.HTML(layout=block_layout())
+        self.checks_html = W.HTML(layout=block_layout())
+        self.notes_html = W.HTML(layout=block_layout())
+        for name in ("spacing", "length", "edge_time"):
+            self._setters[name] = lambda v, name=name: self._set_slider(name, v)
+            self._watch(getattr(self, name))
+        self.widget = self._layout()
+        self._show(first)
+
+    def _slider(self, label: str, options, value) -> W.SelectionSlider:
+        return W.SelectionSlider(options=options, value=value, description=label,
+                                 continuous_update=False, style=style(),
+                                 layout=field_layout())
+
+    def _set_slider(self, name: str, value) -> None:
+        slider = getattr(self, name)
+        slider.value = _closest_option(slider.options, value, name, f"{name} slider")
+
+    def varied(self):
+        """The coupling as the sliders set it (a described edge where the edge moved)."""
+        c = replace(self.coupling, spacing=self.spacing.value, length=self.length.value)
+        if self.edge_time.value != self.aggressor.edge_time or isinstance(c.aggressor, Edge):
+            a = self.aggressor
+            c = replace(c, aggressor=Edge(a.swing, self.edge_time.value, a.r_source, a.c_far),
+                        loc=self.coupling.loc)
+        return c
+
+    def _recompute(self) -> None:
+        try:
+            got = evaluate_coupling(self.varied(), self.buses, self.design)
+        except PinlibError as err:
+            self.result, self.figures, self.sweep, self.waves = None, {}, None, None
+            self.figures_html.value = self.checks_html.value = self.notes_html.value = ""
+            self._failed(err, [self.noise_chart, self.wave_chart])
+            return
+        self._show(got)
+
+    def _show(self, got) -> None:
+        self.error = None
+        self.result = got
+        self.figures = dict(got.figures)
+        self.sweep = plotdata.noise_vs_spacing_data(got)
+        self.waves = plotdata.noise_waveform_data(got)
+        d = self.sweep
+        self.noise_chart.draw(lambda: charts.spec(
+            charts.noise_vs_spacing, d.spacing, d.peak, allowed=d.allowed,
+            design_spacing=d.design_spacing, design_peak=d.design_peak,
+            minimum_spacing=d.minimum_spacing, title="Crosstalk against spacing",
+            subtitle=f"parallel length {format_si(d.length, 'm')}"))
+        self._draw_waves()
+        self.status_html.value = status_line(got, f"{got.victim} beside {got.aggressor}")
+        self.figures_html.value = figures_table(self.figures)
+        self.checks_html.value = checks_table(got)
+        self.notes_html.value = notes_html([got])
+
+    def _draw_waves(self) -> None:
+        w = self.waves
+        if w is None:
+            return
+        shown = self.show.value
+        traces = {k: v for k, v in w.traces.items() if shown == "both" or k.startswith(shown)}
+        self.wave_chart.draw(lambda: charts.spec(
+            charts.waveforms, w.t, traces, v_il=w.v_il, v_ih=w.v_ih, vdd=w.vdd,
+            title="Victim noise", subtitle="at the victim's receivers"))
+
+    def static_view(self) -> StaticView:
+        """The charts and tables as plain HTML, for exported pages."""
+        if self.result is None:
+            return StaticView(caution_html() + error_html(self.error))
+        return StaticView(caution_html() + self.status_html.value + self.noise_chart.html()
+                          + self.wave_chart.html() + self.figures_html.value
+                          + self.checks_html.value)
+
+    def _layout(self) -> W.Widget:
+        controls = [heading("The run"), self.spacing, self.length,
+                    heading("The aggressor"), self.edge_time,
+                    heading("Waveforms"), self.show]
+        outputs = [self.held_html, self.status_html, self.noise_chart.widget,
+                   self.wave_chart.widget, self.figures_html, self.notes_html]
+        return W.VBox([self._header("Crosstalk onto a slow line"),
+                       self._columns(controls, outputs, [self.checks_html])],
+                      layout=W.Layout(width="100%"))

@@ -1,0 +1,206 @@
+"""pinlib.engines.coupling: a design's [[coupling]] through check, JSON and the text report.
+
+The designs here are invented for the tests: an I2C Standard-mode bus (its inputs need
+not filter spikes) with a fast described edge 50 µm beside its SCL for 25 cm, and the
+demo's display clock beside its sensor bus's SCL.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import json
+import textwrap
+import warnings
+
+import numpy as np
+import pytest
+
+from pinlib.core.errors import ValidityWarning
+from pinlib.engines.coupling import pair_at
+from pinlib.engines.crosstalk import coupling_checks, noise_batch, victim_noise
+from pinlib.engines.dispatch import check_design
+from pinlib.model.design import load_design
+from pinlib.present.report import format_text
+
+DESIGN = """\
+format = "pinlib.design/1"
+title = "coupling test board (invented)"
+
+[board.geometry.g]
+kind = "microstrip"
+width = "0.2 mm"
+height = "0.18 mm"
+thickness = "0 mm"
+er = 4.2
+
+[[bus]]
+id = "b"
+protocol = "i2c"
+mode = "standard"
+supply = "3.3 V"
+pullup = "4.7 kΩ"
+trace = { length = "30 cm", geometry = "g" }
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "eeprom-i2c" },
+]
+
+[[coupling]]
+victim = "b.scl"
+aggressor = { swing = "3.3 V", edge_time = "0.5 ns", source_resistance = "20 Ω" }
+spacing = "0.05 mm"
+parallel_length = "25 cm"
+geometry = "g"
+"""
+
+
+@pytest.fixture(scope="module")
+def tight(tmp_path_factory):
+    path = tmp_path_factory.mktemp("coupling") / "design.toml"
+    path.write_text(textwrap.dedent(DESIGN), encoding="utf-8")
+    design = load_design(path)
+    return design, check_design(design)
+
+
+def _fails(pair, length, w) -> bool:
+    noise = victim_noise(pair, length, w.aggressor, w.victim)
+    return any(c.status == "fail" for c in coupling_checks(noise, w.victim, subject="v"))
+
+
+def test_a_tight_run_fails_on_scl_with_its_sources(tight):
+    _, result = tight
+    (c,) = result.couplings
+    assert c.id == "b.scl<-edge-1" and c.status == "fail" and result.status == "fail"
+    failing = [k for k in c.checks if k.status == "fail"]
+    # UM10204 rev. 6, table 9: Standard-mode inputs need not filter, so a crossing on SCL
+    # is a second clock edge (the glitch check fails with no limit)
+    assert any(k.id == "crosstalk-glitch" and k.limit is None for k in failing)
+    assert all(k.source for k in c.checks)
+    assert all("UM10204" in k.source for k in c.checks)
+
+
+def test_minimum_spacing_and_maximum_length_are_edges_of_passing(tight):
+    design, result = tight
+    (c,) = result.couplings
+    w = c.workings
+    coupling = design.couplings[0]
+    s_min = c.figures["minimum_spacing"].value
+    l_max = c.figures["maximum_parallel_length"].value
+    assert coupling.spacing < s_min and l_max < coupling.length
+    # derived from the search: its edge passes and 3 % past it fails (grid precision 2 %)
+    assert not _fails(pair_at(coupling, s_min), coupling.length, w)
+    assert _fails(pair_at(coupling, s_min / 1.03), coupling.length, w)
+    pair = pair_at(coupling, coupling.spacing)
+    assert not _fails(pair, l_max, w)
+    assert _fails(pair, l_max * 1.03, w)
+
+
+def test_the_batched_solve_is_the_single_one(tight):
+    design, result = tight
+    w = result.couplings[0].workings
+    coupling = design.couplings[0]
+    spacings = np.array([0.05e-3, 0.2e-3, 0.6e-3])
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        batch = noise_batch(pair_at(coupling, spacings), coupling.length, w.aggressor, w.victim)
+        for s, got in zip(spacings, batch, strict=True):
+            one = victim_noise(pair_at(coupling, s), coupling.length, w.aggressor, w.victim)
+            # derived from one solver: the same pairs, stacked or alone (1e-12)
+            for key, n in one.items():
+                assert got[key].level == pytest.approx(n.level, abs=1e-12)
+                assert got[key].beyond == pytest.approx(n.beyond, abs=1e-15)
+
+
+def test_json_holds_the_coupling_beside_the_buses(tight):
+    _, result = tight
+    data = json.loads(json.dumps(result.to_json()))
+    (c,) = data["couplings"]
+    assert c["victim"] == "b.scl" and c["aggressor"] == "edge-1"
+    assert {"minimum_spacing", "maximum_parallel_length", "peak_noise"} <= set(c["figures"])
+    assert [b["id"] for b in data["buses"]] == ["b"]
+
+
+def test_the_text_puts_the_coupling_problems_first(tight):
+    _, result = tight
+    text = format_text(result, width=100)
+    lines = text.splitlines()
+    first = next(i for i, ln in enumerate(lines) if ln.startswith("FAIL b.scl<-edge-1"))
+    summary = next(i for i, ln in enumerate(lines) if ln.startswith("FAIL b.scl beside edge-1"))
+    assert first < summary
+    assert "on 1 bus and 1 coupling" in text
+
+
+def test_a_design_without_couplings_keeps_its_json():
+    design = load_design("workbooks/designs/demo-board.toml")
+    bare = check_design(dataclasses.replace(design, couplings=()))
+    assert "couplings" not in bare.to_json()
+
+
+def test_monte_carlo_reads_the_noise_from_a_table_that_follows_the_solver(tight, tmp_path):
+    from pinlib.engines import couplingbatch as cb
+    from pinlib.studies import whatif
+
+    design, result = tight
+    text = DESIGN + 'spacing_tolerance = "20 %"\nlength_tolerance = "10 %"\n'
+    path = tmp_path / "tol.toml"
+    path.write_text(text, encoding="utf-8")
+    d = load_design(path)
+    (c,) = d.couplings
+    nominal = result.couplings[0]
+    table = cb.CouplingTable.solve(c, nominal)
+    # between the grid's points the table agrees with the solver (derived from the
+    # solver itself; 2 % of the level: the noise is smooth in spacing and length)
+    w = nominal.workings
+    for fs, fl in ((0.9, 1.05), (1.13, 0.93)):
+        one = victim_noise(pair_at(c, c.spacing * fs), c.length * fl, w.aggressor, w.victim)
+        for key, n in one.items():
+            got = float(table.read(table.levels[key], np.array([fs]), np.array([fl]))[0])
+            assert got == pytest.approx(n.level, rel=0.02, abs=0.02)
+    mc = whatif.monte_carlo(d, 200, seed=3)
+    assert "b.scl<-edge-1" in mc.buses
+    mine = [k for k in mc.checks if k.bus == "b.scl<-edge-1"]
+    assert [k.id for k in mine] == [k.id for k in nominal.checks]
+    assert {p.name for p in mc.parameters} >= {"b.scl<-edge-1 spacing",
+                                                "b.scl<-edge-1 parallel length"}
+    # the nominal run fails on SCL: so do the boards around it
+    assert mc.buses["b.scl<-edge-1"].passes < 200
+
+
+def test_the_charts_draw_what_the_engine_solved(tight):
+    from pinlib.present import charts as ch
+    from pinlib.present import plotdata
+
+    _, result = tight
+    c = result.couplings[0]
+    d = plotdata.noise_vs_spacing_data(c)
+    # every spacing drawn is one the searches solved (no solve again), sorted
+    assert len(d.spacing) == len(c.workings.sweep) and np.all(np.diff(d.spacing) > 0)
+    assert d.design_spacing == c.figures["spacing"].value
+    assert d.design_peak == pytest.approx(c.figures["peak_noise"].value, abs=1e-12)
+    # derived from the receivers' levels: VIL 0.3 VDD and VDD - VIH 0.3 VDD (UM10204
+    # rev. 6, table 9, through the test parts' classes)
+    assert 0 < d.allowed < 3.3
+    w = plotdata.noise_waveform_data(c)
+    assert set(w.traces) == {"held low, near end", "held low, far end",
+                             "held high, near end", "held high, far end"}
+    # each trace in the direction that hurts: the held-high one dips to the checked level
+    low = min(w.traces["held high, near end"])
+    check = next(k for k in c.checks if k.id == "crosstalk-high"
+                 and k.details == {"end": "near", "held": "high"})
+    assert low == pytest.approx(check.value, abs=1e-12)
+    spec = ch.noise_vs_spacing(d.spacing, d.peak, allowed=d.allowed,
+                               design_spacing=d.design_spacing, design_peak=d.design_peak,
+                               minimum_spacing=d.minimum_spacing).to_dict()
+    assert "minimum spacing" in json.dumps(spec)
+
+
+def test_a_snapshot_comparison_names_a_coupling_that_moved(tight):
+    from pinlib.studies.compare import compare
+
+    _, result = tight
+    old = result.to_json()
+    new = json.loads(json.dumps(old))
+    fig = new["couplings"][0]["figures"]["peak_noise"]
+    fig["value"] *= 1.5  # invented: the same run 50 % noisier
+    text = json.dumps(compare(old, new).to_json())
+    assert "b.scl<-edge-1" in text and "peak_noise" in text
