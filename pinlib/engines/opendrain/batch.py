@@ -33,6 +33,7 @@ from collections.abc import Sequence
 import numpy as np
 
 from pinlib.engines.opendrain.arith import fall_bounds, low_levels
+from pinlib.engines.opendrain.batchgathered import line_from
 from pinlib.engines.opendrain.batchinputs import (
     Level,
     PinData,
@@ -253,9 +254,9 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
                  "Hz", [ref for _, ref in slow])
     # -- SDA data setup
     tr_sda = figs["sda"]["rise_time"]
-    def drives_sda(d, seg):
-        pin = ctx.parts.pins(d, SIGNALS["sda"], seg.supply)
-        return pin is not None and pin.open_drain
+    def drives_sda(d, seg):  # its pin as the segment's SDA line holds it
+        taps = ctx.by_id[seg.id].lines["sda"].taps
+        return any(t.dev is d and t.pin.open_drain for t in taps)
 
     sources = list(data_sources(s.index, ctx.ctrl_seg, [(o.index, o.seg) for o in ctx.segs],
                                 ctrl, ctx.delay, drives_sda))
@@ -382,13 +383,17 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
     parts = _Parts(lim, swap)
     # the engine's corners of the design as it stands: every variant is the design, whose
     # pull-ups the gathering has chosen already (WorstCase.resistor takes them)
-    chooses = scenario.chooses and not (swap is None and type(scenario) is WorstCase)
+    own = swap is None and type(scenario) is WorstCase
+    chooses = scenario.chooses and not own
     segs: list[_Seg] = []
     for i, (seg, sin) in enumerate(zip(bus.segments, seg_ins, strict=True)):
         v = np.asarray(scenario.rails(seg), dtype=float)
-        board = scenario.board(bus, seg, sin.lines["sda"].cb_parts)
-        lines = {sig: _line(bus, seg, sig, fn, v, parts, scenario, lim, board)
-                 for sig, fn in SIGNALS.items()}
+        if own:  # the gathering's lines: the pins are not read again
+            lines = {sig: line_from(sin.lines[sig], seg, parts, scenario) for sig in SIGNALS}
+        else:
+            board = scenario.board(bus, seg, sin.lines["sda"].cb_parts)
+            lines = {sig: _line(bus, seg, sig, fn, v, parts, scenario, lim, board)
+                     for sig, fn in SIGNALS.items()}
         s = _Seg(seg, i, v, scenario.spread(seg), lines)
         if chooses:
             _choose(s)
@@ -402,6 +407,7 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
         _couple(segs, joins, chooses)
     ctx = _Ctx()
     ctx.lim, ctx.segs, ctx.links, ctx.parts, ctx.n = lim, segs, joins, parts, n
+    ctx.by_id = {s.seg.id: s for s in segs}
     ctx.warn = design.warn_margin
     ctx.clock = bus.clock if bus.clock is not None else lim.f_max
     ctx.controller, ctx.ctrl_seg = controller_of(bus, pairs)
