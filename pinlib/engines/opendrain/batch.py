@@ -55,6 +55,9 @@ from pinlib.engines.opendrain.batchresult import (
     BusBatch,
     SegmentBatch,
     _Out,
+    ge,
+    given,
+    le,
 )
 from pinlib.engines.opendrain.bridges import gate_drive
 from pinlib.engines.opendrain.explain import _WORST
@@ -74,7 +77,6 @@ from pinlib.engines.opendrain.rules import (
 )
 from pinlib.library.schema import Part
 from pinlib.model.design import Bus, Design
-from pinlib.model.result import max_margin, min_margin
 from pinlib.physics import pullup as pu
 from pinlib.physics.rc import RISE_10_90
 
@@ -115,17 +117,17 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
                            "rp_max": ln.rp_max, "v_oh": None, "noise_margin_low": None,
                            "noise_margin_high": None, "pullup_power": None}
     if lim.cb_max is not None:
-        out.pick("bus-capacitance", up, [(max_margin(ln.cb, lim.cb_max), ln.cb, lim.cb_max)], warn,
-                 "F")
+        out.pick("bus-capacitance", up, [le(ln.cb, lim.cb_max)], warn, "F")
     m_lo, m_hi = pu.pullup_margins(ln.pullup, ln.rp_min, ln.rp_max, tol, ln.r_parts)
     low = np.asarray(m_lo) <= np.asarray(m_hi)
-    out.pick("pullup-window", up, [(
-        np.where(low, min_margin(rp_lo, ln.rp_min), max_margin(rp_hi, ln.rp_max)),
-        np.where(low, rp_lo, rp_hi), np.where(low, ln.rp_min, ln.rp_max))], warn, "Ω")
+    # the end nearer its bound: Rp(min) below (>=), Rp(max) above (<=)
+    out.pick("pullup-window", up, [(np.where(low, rp_lo, rp_hi),
+                                    np.where(low, ln.rp_min, ln.rp_max),
+                                    np.where(low, -1.0, 1.0), None)], warn, "Ω")
     tr = pu.rise_time(rp_hi, ln.cb, ln.rise_factor)
     f["rise_time"] = tr
     f["rise_time_10_90"] = pu.rise_time(rp_hi, ln.cb, RISE_10_90)
-    out.pick("rise-time", up, [(max_margin(tr, lim.tr_max), tr, lim.tr_max)], warn, "s")
+    out.pick("rise-time", up, [le(tr, lim.tr_max)], warn, "s")
     # -- low levels
     far = _far(s, ctx.segs, ctx.links[s.index], ln.signal)
     raw, offset_levels = low_levels(v, rp_lo, ln.drivers, far, ctx.segs, ln.signal)
@@ -137,20 +139,19 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
         vol_bus = np.max(stacked, axis=0)
         f["v_ol"] = _worst_max(vol_bus)
         if ln.receivers:
-            out.pick("v-ol", up, [(max_margin(vol_bus, r.v_il), vol_bus, r.v_il)
-                                  for r in ln.receivers], warn, "V",
-                     [r.tap.label for r in ln.receivers], per_row=True)
-            _driver_behind(out.checks[-1], stacked, ctx.n, [
-                d.tap.label + ("" if link is None else f" via {link.dev.ref}")
-                for _, _, d, link in raw])
+            chk = out.pick("v-ol", up, [le(vol_bus, r.v_il) for r in ln.receivers], warn, "V",
+                           [r.tap.label for r in ln.receivers], per_row=True)
+            behind = [d.tap.label + ("" if link is None else f" via {link.dev.ref}")
+                      for _, _, d, link in raw]
+            out.after(lambda: _driver_behind(chk, stacked, ctx.n, behind))
             vil_min = _reduce(np.min, [r.v_il for r in ln.receivers])
             nml = vil_min - vol_bus
             f["noise_margin_low"] = np.min(nml, axis=-1, keepdims=True)
             if lim.v_nl_rel is not None:
                 limit = lim.v_nl_rel * v
-                out.pick("noise-margin-low", up, [(min_margin(nml, limit), nml, limit)], warn, "V")
+                nm = out.pick("noise-margin-low", up, [ge(nml, limit)], warn, "V")
                 # the figure is the check's value (at the corner of its worst margin)
-                f["noise_margin_low"] = out.checks[-1].value[:, None]
+                f["noise_margin_low"] = lambda: nm.value[:, None]
     if levels or offset_levels:
         rows = [(i, d) for _, i, d in levels + offset_levels if d is not None]
         if rows:
@@ -163,24 +164,27 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             im = np.take_along_axis(currents, k, axis=1)
             i_ol = np.take_along_axis(np.stack([np.broadcast_to(d.i_ol, shape)[:, 0]
                                                 for _, d in rows], axis=1), k, axis=1)
-            out.pick("sink-current", up, [(max_margin(im, i_ol), im, i_ol)], warn, "A",
-                     [d.tap.label for _, d in rows])
-            out.checks[-1].row, out.checks[-1].row_values = k[:, 0], currents
+            sc = out.pick("sink-current", up, [le(im, i_ol)], warn, "A",
+                          [d.tap.label for _, d in rows])
+
+            def _rows():
+                sc.row, sc.row_values = k[:, 0], currents
+            out.after(_rows)
         f["pullup_power"] = _reduce(np.max, [_worst_max(v * (v - lv[0]) / rp_lo)
                                              for lv in levels + offset_levels])
     # -- high level
     voh = pu.high_level(v, rp_hi, ln.leakage)
     f["v_oh"] = np.min(voh, axis=-1, keepdims=True)
     if ln.receivers:
-        out.pick("v-oh", up, [(min_margin(voh, r.v_ih), voh, r.v_ih) for r in ln.receivers], warn,
+        out.pick("v-oh", up, [ge(voh, r.v_ih) for r in ln.receivers], warn,
                  "V", [r.tap.label for r in ln.receivers], per_row=True)
         vih_max = _reduce(np.max, [r.v_ih for r in ln.receivers])
         nmh = voh - vih_max
         f["noise_margin_high"] = np.min(nmh, axis=-1, keepdims=True)
         if lim.v_nh_rel is not None:
             limit = lim.v_nh_rel * v
-            out.pick("noise-margin-high", up, [(min_margin(nmh, limit), nmh, limit)], warn, "V")
-            f["noise_margin_high"] = out.checks[-1].value[:, None]  # as noise_margin_low
+            nh = out.pick("noise-margin-high", up, [ge(nmh, limit)], warn, "V")
+            f["noise_margin_high"] = lambda: nh.value[:, None]  # as noise_margin_low
     _fall_checks(ctx, ln, out, f, rp_lo, v, far)
 
 
@@ -201,8 +205,7 @@ def _fall_checks(ctx, ln: _Line, out: _Out, f: dict, rp_lo, v, far) -> None:
     if not bounds:
         return
     f["fall_time"] = _reduce(np.max, [_worst_max(t) for t, _, _, _ in bounds])
-    out.pick("fall-time", up, [(max_margin(t, lim.tf_max), t, lim.tf_max)
-                               for t, _, _, _ in bounds], warn, "s",
+    out.pick("fall-time", up, [le(t, lim.tf_max) for t, _, _, _ in bounds], warn, "s",
              [d.tap.label + ("" if link is None else f" via {link.dev.ref}")
               for _, d, link, _ in bounds])
     tf_min = lim.tf_min(np.asarray(v[:, -1:], dtype=float))
@@ -210,8 +213,7 @@ def _fall_checks(ctx, ln: _Line, out: _Out, f: dict, rp_lo, v, far) -> None:
         for d in ln.drivers:
             t_of = d.tap.pin.t_of_min
             if t_of is not None:
-                out.pick("fall-time-min", up, [(min_margin(t_of, tf_min), t_of, tf_min)], warn,
-                         "s", [d.tap.label])
+                out.pick("fall-time-min", up, [ge(t_of, tf_min)], warn, "s", [d.tap.label])
 
 
 def _reduce(fn, arrays):
@@ -246,11 +248,11 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
     figs["segment"] = {"scl_frequency_effective": pu.scl_frequency(
         t_low, t_high, figs["scl"]["rise_time"], tf_scl if tf_scl is not None else 0.0),
         "sda_setup_margin": None}
-    out.pick("scl-frequency", None, [(max_margin(clock, lim.f_max), clock, lim.f_max)], 0.0, "Hz")
+    out.pick("scl-frequency", None, [le(clock, lim.f_max)], 0.0, "Hz")
     slow = [(ctx.parts.timing(d).f_max, d.ref) for d in seg.devices
             if not d.is_controller and not d.is_bridge and ctx.parts.timing(d).f_max is not None]
     if slow:
-        out.pick("device-speed", None, [(max_margin(clock, f), clock, f) for f, _ in slow], 0.0,
+        out.pick("device-speed", None, [le(clock, f) for f, _ in slow], 0.0,
                  "Hz", [ref for _, ref in slow])
     # -- SDA data setup
     tr_sda = figs["sda"]["rise_time"]
@@ -263,9 +265,9 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
     if sources:
         budgets = [t_low - (ctx.parts.timing(d).t_vd_dat + extra) - tr_sda
                    for d, extra in sources]
-        out.pick("setup-time", None, [(min_margin(b, lim.t_su_dat), b, lim.t_su_dat)
-                                      for b in budgets], warn, "s", [d.ref for d, _ in sources])
-        figs["segment"]["sda_setup_margin"] = out.checks[-1].value - lim.t_su_dat
+        st = out.pick("setup-time", None, [ge(b, lim.t_su_dat) for b in budgets], warn, "s",
+                      [d.ref for d, _ in sources])
+        figs["segment"]["sda_setup_margin"] = lambda: st.value - lim.t_su_dat
 
 
 def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
@@ -278,7 +280,7 @@ def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
             continue
         names.append(t.label)
         am = _corner(t.pin.abs_max, t, v, "min")
-        rows.append((max_margin(v, am), v, am))
+        rows.append(le(v, am))
         follows = np.logical_and(not t.own, t.pin.abs_follows)
         warns.append(np.where(follows, 0.0, warn))
     if rows:
@@ -295,7 +297,7 @@ def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
         hi = t.rail.max(axis=1, keepdims=True)
         m, low_side = supply_margin(lo, hi, s_min, s_max)
         names.append(t.label)
-        rows.append((m, np.where(low_side, lo, hi), np.where(low_side, s_min, s_max)))
+        rows.append(given(m, np.where(low_side, lo, hi), np.where(low_side, s_min, s_max)))
     if rows:
         out.pick("supply-range", None, rows, 0.0, "V", names)
     # -- power states
@@ -336,8 +338,7 @@ def _bridge_checks(ctx, s: _Seg, out: _Out) -> None:
         facing = [(r, sig) for sig in SIGNALS for r in s.lines[sig].receivers
                   if r.tap.dev.ref != d.ref]
         if facing:
-            out.pick("bridge-offset", None, [(max_margin(off, r.v_il), off, r.v_il)
-                                             for r, _ in facing], warn, "V",
+            out.pick("bridge-offset", None, [le(off, r.v_il) for r, _ in facing], warn, "V",
                      [f"{r.tap.label} ({sig.upper()})" for r, sig in facing])
     if offsets:
         out.truth("bridge-offset-facing", None, len(offsets) < 2)
@@ -419,13 +420,20 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
         for ln in s.lines.values():
             _line_checks(ctx, s, ln, out, figs)
         _segment_checks(ctx, s, out, figs)
-        result.segments.append(SegmentBatch(s.seg.id, out.checks, _figures(s, figs, out)))
+        checks = out.finish()
+        result.segments.append(SegmentBatch(s.seg.id, checks, _figures(s, figs, out)))
     return result
 
 
 def _figures(s: _Seg, figs: dict, out: _Out) -> dict:
     """A segment's figures, each an array over the variants: the one-bus engine's (the
-    worse of the two lines, each line's own, the segment's)."""
+    worse of the two lines, each line's own, the segment's); a figure that is a check's
+    value is asked for once the checks are finished."""
+    for group in figs.values():
+        for name, x in group.items():
+            if callable(x):
+                group[name] = x()
+
     def col(x):
         return None if x is None else out._n(np.asarray(x, dtype=float).reshape(-1))
 
