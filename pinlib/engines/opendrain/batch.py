@@ -78,6 +78,7 @@ from pinlib.engines.opendrain.rules import (
 from pinlib.library.schema import Part
 from pinlib.model.design import Bus, Design
 from pinlib.physics import pullup as pu
+from pinlib.physics.pullup import unchecked
 from pinlib.physics.rc import RISE_10_90
 
 __all__ = [
@@ -118,19 +119,21 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
                            "noise_margin_high": None, "pullup_power": None}
     if lim.cb_max is not None:
         out.pick("bus-capacitance", up, [le(ln.cb, lim.cb_max)], warn, "F")
-    m_lo, m_hi = pu.pullup_margins(ln.pullup, ln.rp_min, ln.rp_max, tol, ln.r_parts)
-    low = np.asarray(m_lo) <= np.asarray(m_hi)
+    far = _far(s, ctx.segs, ctx.links[s.index], ln.signal)
+    phys = unchecked if not far and _in_domain(lim, ln, v, rp_lo, rp_hi) else pu
+    # pullup.pullup_margins' two margins (its inputs are the gathering's: Rp(min) and
+    # Rp(max) above 0, a tolerance below 1): the end nearer its bound
+    low = rp_lo / ln.rp_min - 1.0 <= 1.0 - rp_hi / ln.rp_max
     # the end nearer its bound: Rp(min) below (>=), Rp(max) above (<=)
     out.pick("pullup-window", up, [(np.where(low, rp_lo, rp_hi),
                                     np.where(low, ln.rp_min, ln.rp_max),
                                     np.where(low, -1.0, 1.0), None)], warn, "Ω")
-    tr = pu.rise_time(rp_hi, ln.cb, ln.rise_factor)
+    tr = phys.rise_time(rp_hi, ln.cb, ln.rise_factor)
     f["rise_time"] = tr
-    f["rise_time_10_90"] = pu.rise_time(rp_hi, ln.cb, RISE_10_90)
+    f["rise_time_10_90"] = phys.rise_time(rp_hi, ln.cb, RISE_10_90)
     out.pick("rise-time", up, [le(tr, lim.tr_max)], warn, "s")
     # -- low levels
-    far = _far(s, ctx.segs, ctx.links[s.index], ln.signal)
-    raw, offset_levels = low_levels(v, rp_lo, ln.drivers, far, ctx.segs, ln.signal)
+    raw, offset_levels = low_levels(v, rp_lo, ln.drivers, far, ctx.segs, ln.signal, phys)
     levels = [(vb, i, d if link is None else None) for vb, i, d, link in raw]
     f["v_ol"] = None
     if levels:
@@ -173,7 +176,7 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
         f["pullup_power"] = _reduce(np.max, [_worst_max(v * (v - lv[0]) / rp_lo)
                                              for lv in levels + offset_levels])
     # -- high level
-    voh = pu.high_level(v, rp_hi, ln.leakage)
+    voh = phys.high_level(v, rp_hi, ln.leakage)
     f["v_oh"] = np.min(voh, axis=-1, keepdims=True)
     if ln.receivers:
         out.pick("v-oh", up, [ge(voh, r.v_ih) for r in ln.receivers], warn,
@@ -185,7 +188,25 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             limit = lim.v_nh_rel * v
             nh = out.pick("noise-margin-high", up, [ge(nmh, limit)], warn, "V")
             f["noise_margin_high"] = lambda: nh.value[:, None]  # as noise_margin_low
-    _fall_checks(ctx, ln, out, f, rp_lo, v, far)
+    _fall_checks(ctx, ln, out, f, rp_lo, v, far, phys)
+
+
+def _in_domain(lim, ln: _Line, v, rp_lo, rp_hi) -> bool:
+    """Whether every value a line's physics takes is inside the domain its functions
+    check (all finite; rail, Cb, leakage, sink and series resistances at or above 0;
+    pull-ups, rise factor, sink points above 0; the measuring levels in order), checked
+    here in one array: then :mod:`pinlib.physics.pullup.unchecked` gives the same
+    numbers, and where not, the checked functions raise their own errors."""
+    v_lo, v_hi = lim.measuring_levels(v)
+    at_least_0 = [v, ln.cb, ln.leakage, v_hi - v_lo]
+    above_0 = [rp_lo, rp_hi, ln.rise_factor, v_hi - v_lo]
+    for d in ln.drivers:
+        at_least_0 += [d.r_sink, d.r_series]
+        above_0 += [d.v_ol, d.i_ol]
+    a = np.concatenate([np.ravel(x) for x in at_least_0])
+    b = np.concatenate([np.ravel(x) for x in above_0])
+    return bool(np.isfinite(a).all() and (a >= 0).all() and np.isfinite(b).all()
+                and (b > 0).all())
 
 
 def _driver_behind(chk, stacked, n: int, names: list) -> None:
@@ -197,10 +218,10 @@ def _driver_behind(chk, stacked, n: int, names: list) -> None:
     chk.by, chk.by_names = by[np.arange(n), corner], names
 
 
-def _fall_checks(ctx, ln: _Line, out: _Out, f: dict, rp_lo, v, far) -> None:
+def _fall_checks(ctx, ln: _Line, out: _Out, f: dict, rp_lo, v, far, phys) -> None:
     """Fall time (each driver's upper bound, the worst named) and tf(min)."""
     lim, warn, up = ctx.lim, ctx.warn, ln.signal.upper()
-    bounds = fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far, ctx.segs, ln.signal)
+    bounds = fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far, ctx.segs, ln.signal, phys)
     f["fall_time"] = None
     if not bounds:
         return
