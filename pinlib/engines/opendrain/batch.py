@@ -158,15 +158,15 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     if levels or offset_levels:
         rows = [(i, d) for _, i, d in levels + offset_levels if d is not None]
         if rows:
-            i_max = [_worst_max(i) for i, _ in rows]
-            ratio = [im / d.i_ol for im, (_, d) in zip(i_max, rows, strict=True)]
-            shape = np.broadcast_shapes(*[np.shape(r) for r in ratio], (ctx.n, 1))
-            k = np.argmax(np.stack([np.broadcast_to(r, shape)[:, 0] for r in ratio], axis=1),
-                          axis=1)[:, None]
-            currents = np.stack([np.broadcast_to(x, shape)[:, 0] for x in i_max], axis=1)
+            # each driver's largest current and its IOL, variant × driver; the worst is
+            # the driver nearest (or furthest over) its IOL
+            currents, iols = np.empty((2, ctx.n, len(rows)))
+            for j, (i, d) in enumerate(rows):
+                currents[:, j] = _worst_max(i)[:, 0]
+                iols[:, j] = np.reshape(d.i_ol, -1) if np.ndim(d.i_ol) else d.i_ol
+            k = np.argmax(currents / iols, axis=1)[:, None]
             im = np.take_along_axis(currents, k, axis=1)
-            i_ol = np.take_along_axis(np.stack([np.broadcast_to(d.i_ol, shape)[:, 0]
-                                                for _, d in rows], axis=1), k, axis=1)
+            i_ol = np.take_along_axis(iols, k, axis=1)
             sc = out.pick("sink-current", up, [le(im, i_ol)], warn, "A",
                           [d.tap.label for _, d in rows])
 

@@ -138,7 +138,7 @@ def _corners(rows) -> int:
     k = 1
     for r in rows:
         for x in r:
-            shape = np.shape(x) if x is not None else ()
+            shape = getattr(x, "shape", None)  # a Python number or None has none
             if shape and shape[-1] > k:
                 k = shape[-1]
     return k
