@@ -32,7 +32,7 @@ from collections.abc import Sequence
 
 import numpy as np
 
-from pinlib.engines.opendrain.arith import fall_bounds, low_levels
+from pinlib.engines.opendrain.arith import fall_bounds, far_drivers, low_levels
 from pinlib.engines.opendrain.batchgathered import line_from
 from pinlib.engines.opendrain.batchinputs import (
     Level,
@@ -120,7 +120,7 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     if lim.cb_max is not None:
         out.pick("bus-capacitance", up, [le(ln.cb, lim.cb_max)], warn, "F")
     far = _far(s, ctx.segs, ctx.links[s.index], ln.signal)
-    phys = unchecked if not far and _in_domain(lim, ln, v, rp_lo, rp_hi) else pu
+    phys = unchecked if _in_domain(ctx, ln, v, rp_lo, rp_hi, far) else pu
     # pullup.pullup_margins' two margins (its inputs are the gathering's: Rp(min) and
     # Rp(max) above 0, a tolerance below 1): the end nearer its bound
     low = rp_lo / ln.rp_min - 1.0 <= 1.0 - rp_hi / ln.rp_max
@@ -191,17 +191,21 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     _fall_checks(ctx, ln, out, f, rp_lo, v, far, phys)
 
 
-def _in_domain(lim, ln: _Line, v, rp_lo, rp_hi) -> bool:
+def _in_domain(ctx, ln: _Line, v, rp_lo, rp_hi, far) -> bool:
     """Whether every value a line's physics takes is inside the domain its functions
     check (all finite; rail, Cb, leakage, sink and series resistances at or above 0;
     pull-ups, rise factor, sink points above 0; the measuring levels in order), checked
     here in one array: then :mod:`pinlib.physics.pullup.unchecked` gives the same
-    numbers, and where not, the checked functions raise their own errors."""
-    v_lo, v_hi = lim.measuring_levels(v)
-    at_least_0 = [v, ln.cb, ln.leakage, v_hi - v_lo]
+    numbers, and where not, the checked functions raise their own errors (the low
+    levels across a pass transistor are always worked out by the checked function)."""
+    v_lo, v_hi = ctx.lim.measuring_levels(v)
+    at_least_0 = [v, ln.cb, ln.leakage]
     above_0 = [rp_lo, rp_hi, ln.rise_factor, v_hi - v_lo]
     for d in ln.drivers:
         at_least_0 += [d.r_sink, d.r_series]
+        above_0 += [d.v_ol, d.i_ol]
+    for d, link, _, _ in far_drivers(far, ctx.segs, ln.signal):  # their fall bounds
+        at_least_0.append(d.r_series + link.r_on)
         above_0 += [d.v_ol, d.i_ol]
     a = np.concatenate([np.ravel(x) for x in at_least_0])
     b = np.concatenate([np.ravel(x) for x in above_0])
