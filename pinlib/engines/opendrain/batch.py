@@ -121,10 +121,9 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
         out.pick("bus-capacitance", up, [le(ln.cb, lim.cb_max)], warn, "F")
     far = _far(s, ctx.segs, ctx.links[s.index], ln.signal)
     phys = unchecked if _in_domain(ctx, ln, v, rp_lo, rp_hi, far) else pu
-    # pullup.pullup_margins' two margins (its inputs are the gathering's: Rp(min) and
-    # Rp(max) above 0, a tolerance below 1): the end nearer its bound
+    # the end nearer its bound, by pullup.pullup_margins' two ratios (its inputs are
+    # the gathering's): Rp(min) below (>=), Rp(max) above (<=)
     low = rp_lo / ln.rp_min - 1.0 <= 1.0 - rp_hi / ln.rp_max
-    # the end nearer its bound: Rp(min) below (>=), Rp(max) above (<=)
     out.pick("pullup-window", up, [(np.where(low, rp_lo, rp_hi),
                                     np.where(low, ln.rp_min, ln.rp_max),
                                     np.where(low, -1.0, 1.0), None)], warn, "Ω")
@@ -158,21 +157,7 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     if levels or offset_levels:
         rows = [(i, d) for _, i, d in levels + offset_levels if d is not None]
         if rows:
-            # each driver's largest current and its IOL, variant × driver; the worst is
-            # the driver nearest (or furthest over) its IOL
-            currents, iols = np.empty((2, ctx.n, len(rows)))
-            for j, (i, d) in enumerate(rows):
-                currents[:, j] = _worst_max(i)[:, 0]
-                iols[:, j] = np.reshape(d.i_ol, -1) if np.ndim(d.i_ol) else d.i_ol
-            k = np.argmax(currents / iols, axis=1)[:, None]
-            im = np.take_along_axis(currents, k, axis=1)
-            i_ol = np.take_along_axis(iols, k, axis=1)
-            sc = out.pick("sink-current", up, [le(im, i_ol)], warn, "A",
-                          [d.tap.label for _, d in rows])
-
-            def _rows():
-                sc.row, sc.row_values = k[:, 0], currents
-            out.after(_rows)
+            _sink_check(ctx, out, up, rows)
         f["pullup_power"] = _reduce(np.max, [_worst_max(v * (v - lv[0]) / rp_lo)
                                              for lv in levels + offset_levels])
     # -- high level
@@ -211,6 +196,24 @@ def _in_domain(ctx, ln: _Line, v, rp_lo, rp_hi, far) -> bool:
     b = np.concatenate([np.ravel(x) for x in above_0])
     return bool(np.isfinite(a).all() and (a >= 0).all() and np.isfinite(b).all()
                 and (b > 0).all())
+
+
+def _sink_check(ctx, out: _Out, up: str, rows: list) -> None:
+    """sink-current: each driver's largest current against its IOL (``rows`` of
+    (current, driver)); the worst is the driver nearest (or furthest over) its IOL."""
+    currents, iols = np.empty((2, ctx.n, len(rows)))  # variant × driver
+    for j, (i, d) in enumerate(rows):
+        currents[:, j] = _worst_max(i)[:, 0]
+        iols[:, j] = np.reshape(d.i_ol, -1) if np.ndim(d.i_ol) else d.i_ol
+    k = np.argmax(currents / iols, axis=1)[:, None]
+    im = np.take_along_axis(currents, k, axis=1)
+    i_ol = np.take_along_axis(iols, k, axis=1)
+    sc = out.pick("sink-current", up, [le(im, i_ol)], ctx.warn, "A",
+                  [d.tap.label for _, d in rows])
+
+    def rows_of():
+        sc.row, sc.row_values = k[:, 0], currents
+    out.after(rows_of)
 
 
 def _driver_behind(chk, stacked, n: int, names: list) -> None:
