@@ -994,3 +994,27 @@ def test_batch_names_the_element_and_corner_of_each_worst():
     # common practice, no source: the designs exercise a worst past the first row and
     # both corners, so a tracker stuck at 0 fails
     assert later_rows > 0 and corners == {0, 1}
+
+
+def test_batch_checks_a_lines_inputs_once_and_keeps_the_physics_errors(tmp_path,
+                                                                      monkeypatch):
+    """The array engine checks a line's values in one array and then skips the physics'
+    own input checks; a value outside their domain goes to the checked functions, which
+    raise the error they always raise (naming the parameter)."""
+    from pinlib.core.errors import InputError
+    from pinlib.engines.opendrain import batch
+    from pinlib.engines.opendrain.batch import WorstCase, build
+
+    d = design(tmp_path, one_bus())
+    bus = d.buses[0]
+    lim, seg_ins = opendrain.collect(bus, d)
+    calls = []
+    real = batch._in_domain
+    monkeypatch.setattr(batch, "_in_domain", lambda *a: calls.append(real(*a)) or calls[-1])
+    build(bus, d, WorstCase(1), collected=(lim, seg_ins))
+    assert calls == [True, True]  # both lines of the one segment, inside the domain
+    calls.clear()
+    seg_ins[0].lines["sda"].leakage = -1e-6  # outside the domain: a negative leakage
+    with pytest.raises(InputError, match="leakage"):
+        build(bus, d, WorstCase(1), collected=(lim, seg_ins))
+    assert calls == [False]

@@ -158,3 +158,23 @@ C1 bus 0 192p IC=0
     t = run_deck(deck, ["tr"])["tr"]
     cb, _ = pu.capacitance_from_rise(t, 2200.0, 12e-12)
     assert cb == pytest.approx(180e-12, rel=0.01)
+
+
+def test_unchecked_functions_give_the_checked_numbers():
+    """pullup.unchecked skips only the input checks: inside the checked domain every
+    number is the checked function's, bit for bit."""
+    from pinlib.physics.pullup import unchecked
+
+    vdd = np.array([[2.97, 3.63]])  # invented rail corners, common practice, no source
+    rp, cb, r_sink, r_s = 2.2e3, 150e-12, 133.3, 47.0  # invented values, no source
+    assert np.array_equal(unchecked.low_level(vdd, rp, r_sink, r_s),
+                          pu.low_level(vdd, rp, r_sink, r_s))
+    assert np.array_equal(unchecked.sink_current(vdd, rp, r_sink, r_s),
+                          pu.sink_current(vdd, rp, r_sink, r_s))
+    assert np.array_equal(unchecked.high_level(vdd, rp, 20e-6), pu.high_level(vdd, rp, 20e-6))
+    assert unchecked.rise_time(rp, cb, RISE_30_70) == pu.rise_time(rp, cb, RISE_30_70)
+    # published: UM10204 rev. 6 table 9, sink point 0.4 V at 3 mA, levels 0.3/0.7 VDD
+    args = (rp, cb, vdd, 0.4, 3e-3, 0.7 * vdd, 0.3 * vdd, r_s)
+    assert np.array_equal(unchecked.fall_time_bound(*args), pu.fall_time_bound(*args))
+    with pytest.raises(InputError, match="leakage"):  # the checked one still checks
+        pu.high_level(vdd, rp, -1e-6)

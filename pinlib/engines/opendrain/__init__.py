@@ -35,7 +35,8 @@ The package:
 - :mod:`.explain`: advice for a failing window, a segment's figures and notes;
 - :mod:`.batchinputs`, :mod:`.batchresult` and :mod:`.batch`: the same checks over
   arrays of variants (Monte Carlo, corners, candidate parts), without messages; each
-  check keeps the row and rail corner of its worst.
+  check keeps the row and rail corner of its worst; at the design's own corners
+  :mod:`.batchgathered` takes the lines from :func:`collect` (one gathering).
 """
 
 from __future__ import annotations

@@ -24,8 +24,10 @@ def far_drivers(far, segs, signal: str):
             yield d, link, v_other, rp_other
 
 
-def low_levels(v, rp_lo, drivers, far, segs, signal: str) -> tuple[list, list]:
-    """The low level each driver makes on the line at the actual current.
+def low_levels(v, rp_lo, drivers, far, segs, signal: str, phys=pu) -> tuple[list, list]:
+    """The low level each driver makes on the line at the actual current (``phys``: the
+    pull-up functions, or :mod:`pinlib.physics.pullup.unchecked` for inputs checked
+    already).
 
     Returns
     -------
@@ -42,8 +44,8 @@ def low_levels(v, rp_lo, drivers, far, segs, signal: str) -> tuple[list, list]:
             offset_levels.append((vb, (v - vb) / rp_lo, d))
             continue
         if not far:
-            vb = np.asarray(pu.low_level(v, rp_lo, d.r_sink, d.r_series), dtype=float)
-            i = np.asarray(pu.sink_current(v, rp_lo, d.r_sink, d.r_series), dtype=float)
+            vb = np.asarray(phys.low_level(v, rp_lo, d.r_sink, d.r_series), dtype=float)
+            i = np.asarray(phys.sink_current(v, rp_lo, d.r_sink, d.r_series), dtype=float)
         else:
             g = 0
             for link, _, rp in far:
@@ -121,10 +123,11 @@ def output_fall(lim, d, cb, v, link, rp_lo):
     return np.where(ok, t, np.inf), kind, why
 
 
-def fall_bounds(lim, rp_lo, cb, v, drivers, far, segs, signal: str) -> list:
+def fall_bounds(lim, rp_lo, cb, v, drivers, far, segs, signal: str, phys=pu) -> list:
     """Upper bound of the fall time of each driver (and of each across a translator,
     through its on-resistance): the smaller of the bound from its guaranteed sink
-    current and the output fall time it guarantees (:func:`output_fall`).
+    current and the output fall time it guarantees (:func:`output_fall`); ``phys`` as
+    for :func:`low_levels`.
 
     Returns
     -------
@@ -139,8 +142,8 @@ def fall_bounds(lim, rp_lo, cb, v, drivers, far, segs, signal: str) -> list:
               for d, link, _, _ in far_drivers(far, segs, signal)]
     out = []
     for d, link, r_s in pairs:
-        t_sink = np.asarray(pu.fall_time_bound(rp_lo, cb, v, d.v_ol, d.i_ol, v_hi, v_lo, r_s),
-                            dtype=float)
+        t_sink = np.asarray(phys.fall_time_bound(rp_lo, cb, v, d.v_ol, d.i_ol, v_hi, v_lo,
+                                                 r_s), dtype=float)
         t_of, kind, why = output_fall(lim, d, cb, v, link, rp_lo)
         t = t_sink if t_of is None else np.minimum(t_sink, t_of)
         out.append((t, d, link, {"t_sink": t_sink, "t_of": t_of, "kind": kind, "why": why}))

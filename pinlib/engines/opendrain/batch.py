@@ -32,7 +32,8 @@ from collections.abc import Sequence
 
 import numpy as np
 
-from pinlib.engines.opendrain.arith import fall_bounds, low_levels
+from pinlib.engines.opendrain.arith import fall_bounds, far_drivers, low_levels
+from pinlib.engines.opendrain.batchgathered import line_from
 from pinlib.engines.opendrain.batchinputs import (
     Level,
     PinData,
@@ -54,6 +55,9 @@ from pinlib.engines.opendrain.batchresult import (
     BusBatch,
     SegmentBatch,
     _Out,
+    ge,
+    given,
+    le,
 )
 from pinlib.engines.opendrain.bridges import gate_drive
 from pinlib.engines.opendrain.explain import _WORST
@@ -73,8 +77,8 @@ from pinlib.engines.opendrain.rules import (
 )
 from pinlib.library.schema import Part
 from pinlib.model.design import Bus, Design
-from pinlib.model.result import max_margin, min_margin
 from pinlib.physics import pullup as pu
+from pinlib.physics.pullup import unchecked
 from pinlib.physics.rc import RISE_10_90
 
 __all__ = [
@@ -114,20 +118,21 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
                            "rp_max": ln.rp_max, "v_oh": None, "noise_margin_low": None,
                            "noise_margin_high": None, "pullup_power": None}
     if lim.cb_max is not None:
-        out.pick("bus-capacitance", up, [(max_margin(ln.cb, lim.cb_max), ln.cb, lim.cb_max)], warn,
-                 "F")
-    m_lo, m_hi = pu.pullup_margins(ln.pullup, ln.rp_min, ln.rp_max, tol, ln.r_parts)
-    low = np.asarray(m_lo) <= np.asarray(m_hi)
-    out.pick("pullup-window", up, [(
-        np.where(low, min_margin(rp_lo, ln.rp_min), max_margin(rp_hi, ln.rp_max)),
-        np.where(low, rp_lo, rp_hi), np.where(low, ln.rp_min, ln.rp_max))], warn, "Ω")
-    tr = pu.rise_time(rp_hi, ln.cb, ln.rise_factor)
-    f["rise_time"] = tr
-    f["rise_time_10_90"] = pu.rise_time(rp_hi, ln.cb, RISE_10_90)
-    out.pick("rise-time", up, [(max_margin(tr, lim.tr_max), tr, lim.tr_max)], warn, "s")
-    # -- low levels
+        out.pick("bus-capacitance", up, [le(ln.cb, lim.cb_max)], warn, "F")
     far = _far(s, ctx.segs, ctx.links[s.index], ln.signal)
-    raw, offset_levels = low_levels(v, rp_lo, ln.drivers, far, ctx.segs, ln.signal)
+    phys = unchecked if _in_domain(ctx, ln, v, rp_lo, rp_hi, far) else pu
+    # the end nearer its bound, by pullup.pullup_margins' two ratios (its inputs are
+    # the gathering's): Rp(min) below (>=), Rp(max) above (<=)
+    low = rp_lo / ln.rp_min - 1.0 <= 1.0 - rp_hi / ln.rp_max
+    out.pick("pullup-window", up, [(np.where(low, rp_lo, rp_hi),
+                                    np.where(low, ln.rp_min, ln.rp_max),
+                                    np.where(low, -1.0, 1.0), None)], warn, "Ω")
+    tr = phys.rise_time(rp_hi, ln.cb, ln.rise_factor)
+    f["rise_time"] = tr
+    f["rise_time_10_90"] = phys.rise_time(rp_hi, ln.cb, RISE_10_90)
+    out.pick("rise-time", up, [le(tr, lim.tr_max)], warn, "s")
+    # -- low levels
+    raw, offset_levels = low_levels(v, rp_lo, ln.drivers, far, ctx.segs, ln.signal, phys)
     levels = [(vb, i, d if link is None else None) for vb, i, d, link in raw]
     f["v_ol"] = None
     if levels:
@@ -136,51 +141,79 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
         vol_bus = np.max(stacked, axis=0)
         f["v_ol"] = _worst_max(vol_bus)
         if ln.receivers:
-            out.pick("v-ol", up, [(max_margin(vol_bus, r.v_il), vol_bus, r.v_il)
-                                  for r in ln.receivers], warn, "V",
-                     [r.tap.label for r in ln.receivers], per_row=True)
-            _driver_behind(out.checks[-1], stacked, ctx.n, [
-                d.tap.label + ("" if link is None else f" via {link.dev.ref}")
-                for _, _, d, link in raw])
+            chk = out.pick("v-ol", up, [le(vol_bus, r.v_il) for r in ln.receivers], warn, "V",
+                           [r.tap.label for r in ln.receivers], per_row=True)
+            behind = [d.tap.label + ("" if link is None else f" via {link.dev.ref}")
+                      for _, _, d, link in raw]
+            out.after(lambda: _driver_behind(chk, stacked, ctx.n, behind))
             vil_min = _reduce(np.min, [r.v_il for r in ln.receivers])
             nml = vil_min - vol_bus
             f["noise_margin_low"] = np.min(nml, axis=-1, keepdims=True)
             if lim.v_nl_rel is not None:
                 limit = lim.v_nl_rel * v
-                out.pick("noise-margin-low", up, [(min_margin(nml, limit), nml, limit)], warn, "V")
+                nm = out.pick("noise-margin-low", up, [ge(nml, limit)], warn, "V")
                 # the figure is the check's value (at the corner of its worst margin)
-                f["noise_margin_low"] = out.checks[-1].value[:, None]
+                f["noise_margin_low"] = lambda: nm.value[:, None]
     if levels or offset_levels:
         rows = [(i, d) for _, i, d in levels + offset_levels if d is not None]
         if rows:
-            i_max = [_worst_max(i) for i, _ in rows]
-            ratio = [im / d.i_ol for im, (_, d) in zip(i_max, rows, strict=True)]
-            shape = np.broadcast_shapes(*[np.shape(r) for r in ratio], (ctx.n, 1))
-            k = np.argmax(np.stack([np.broadcast_to(r, shape)[:, 0] for r in ratio], axis=1),
-                          axis=1)[:, None]
-            currents = np.stack([np.broadcast_to(x, shape)[:, 0] for x in i_max], axis=1)
-            im = np.take_along_axis(currents, k, axis=1)
-            i_ol = np.take_along_axis(np.stack([np.broadcast_to(d.i_ol, shape)[:, 0]
-                                                for _, d in rows], axis=1), k, axis=1)
-            out.pick("sink-current", up, [(max_margin(im, i_ol), im, i_ol)], warn, "A",
-                     [d.tap.label for _, d in rows])
-            out.checks[-1].row, out.checks[-1].row_values = k[:, 0], currents
+            _sink_check(ctx, out, up, rows)
         f["pullup_power"] = _reduce(np.max, [_worst_max(v * (v - lv[0]) / rp_lo)
                                              for lv in levels + offset_levels])
     # -- high level
-    voh = pu.high_level(v, rp_hi, ln.leakage)
+    voh = phys.high_level(v, rp_hi, ln.leakage)
     f["v_oh"] = np.min(voh, axis=-1, keepdims=True)
     if ln.receivers:
-        out.pick("v-oh", up, [(min_margin(voh, r.v_ih), voh, r.v_ih) for r in ln.receivers], warn,
+        out.pick("v-oh", up, [ge(voh, r.v_ih) for r in ln.receivers], warn,
                  "V", [r.tap.label for r in ln.receivers], per_row=True)
         vih_max = _reduce(np.max, [r.v_ih for r in ln.receivers])
         nmh = voh - vih_max
         f["noise_margin_high"] = np.min(nmh, axis=-1, keepdims=True)
         if lim.v_nh_rel is not None:
             limit = lim.v_nh_rel * v
-            out.pick("noise-margin-high", up, [(min_margin(nmh, limit), nmh, limit)], warn, "V")
-            f["noise_margin_high"] = out.checks[-1].value[:, None]  # as noise_margin_low
-    _fall_checks(ctx, ln, out, f, rp_lo, v, far)
+            nh = out.pick("noise-margin-high", up, [ge(nmh, limit)], warn, "V")
+            f["noise_margin_high"] = lambda: nh.value[:, None]  # as noise_margin_low
+    _fall_checks(ctx, ln, out, f, rp_lo, v, far, phys)
+
+
+def _in_domain(ctx, ln: _Line, v, rp_lo, rp_hi, far) -> bool:
+    """Whether every value a line's physics takes is inside the domain its functions
+    check (all finite; rail, Cb, leakage, sink and series resistances at or above 0;
+    pull-ups, rise factor, sink points above 0; the measuring levels in order), checked
+    here in one array: then :mod:`pinlib.physics.pullup.unchecked` gives the same
+    numbers, and where not, the checked functions raise their own errors (the low
+    levels across a pass transistor are always worked out by the checked function)."""
+    v_lo, v_hi = ctx.lim.measuring_levels(v)
+    at_least_0 = [v, ln.cb, ln.leakage]
+    above_0 = [rp_lo, rp_hi, ln.rise_factor, v_hi - v_lo]
+    for d in ln.drivers:
+        at_least_0 += [d.r_sink, d.r_series]
+        above_0 += [d.v_ol, d.i_ol]
+    for d, link, _, _ in far_drivers(far, ctx.segs, ln.signal):  # their fall bounds
+        at_least_0.append(d.r_series + link.r_on)
+        above_0 += [d.v_ol, d.i_ol]
+    a = np.concatenate([np.ravel(x) for x in at_least_0])
+    b = np.concatenate([np.ravel(x) for x in above_0])
+    return bool(np.isfinite(a).all() and (a >= 0).all() and np.isfinite(b).all()
+                and (b > 0).all())
+
+
+def _sink_check(ctx, out: _Out, up: str, rows: list) -> None:
+    """sink-current: each driver's largest current against its IOL (``rows`` of
+    (current, driver)); the worst is the driver nearest (or furthest over) its IOL."""
+    currents, iols = np.empty((2, ctx.n, len(rows)))  # variant × driver
+    for j, (i, d) in enumerate(rows):
+        currents[:, j] = _worst_max(i)[:, 0]
+        iols[:, j] = np.reshape(d.i_ol, -1) if np.ndim(d.i_ol) else d.i_ol
+    k = np.argmax(currents / iols, axis=1)[:, None]
+    im = np.take_along_axis(currents, k, axis=1)
+    i_ol = np.take_along_axis(iols, k, axis=1)
+    sc = out.pick("sink-current", up, [le(im, i_ol)], ctx.warn, "A",
+                  [d.tap.label for _, d in rows])
+
+    def rows_of():
+        sc.row, sc.row_values = k[:, 0], currents
+    out.after(rows_of)
 
 
 def _driver_behind(chk, stacked, n: int, names: list) -> None:
@@ -192,16 +225,15 @@ def _driver_behind(chk, stacked, n: int, names: list) -> None:
     chk.by, chk.by_names = by[np.arange(n), corner], names
 
 
-def _fall_checks(ctx, ln: _Line, out: _Out, f: dict, rp_lo, v, far) -> None:
+def _fall_checks(ctx, ln: _Line, out: _Out, f: dict, rp_lo, v, far, phys) -> None:
     """Fall time (each driver's upper bound, the worst named) and tf(min)."""
     lim, warn, up = ctx.lim, ctx.warn, ln.signal.upper()
-    bounds = fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far, ctx.segs, ln.signal)
+    bounds = fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far, ctx.segs, ln.signal, phys)
     f["fall_time"] = None
     if not bounds:
         return
     f["fall_time"] = _reduce(np.max, [_worst_max(t) for t, _, _, _ in bounds])
-    out.pick("fall-time", up, [(max_margin(t, lim.tf_max), t, lim.tf_max)
-                               for t, _, _, _ in bounds], warn, "s",
+    out.pick("fall-time", up, [le(t, lim.tf_max) for t, _, _, _ in bounds], warn, "s",
              [d.tap.label + ("" if link is None else f" via {link.dev.ref}")
               for _, d, link, _ in bounds])
     tf_min = lim.tf_min(np.asarray(v[:, -1:], dtype=float))
@@ -209,8 +241,7 @@ def _fall_checks(ctx, ln: _Line, out: _Out, f: dict, rp_lo, v, far) -> None:
         for d in ln.drivers:
             t_of = d.tap.pin.t_of_min
             if t_of is not None:
-                out.pick("fall-time-min", up, [(min_margin(t_of, tf_min), t_of, tf_min)], warn,
-                         "s", [d.tap.label])
+                out.pick("fall-time-min", up, [ge(t_of, tf_min)], warn, "s", [d.tap.label])
 
 
 def _reduce(fn, arrays):
@@ -245,26 +276,26 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
     figs["segment"] = {"scl_frequency_effective": pu.scl_frequency(
         t_low, t_high, figs["scl"]["rise_time"], tf_scl if tf_scl is not None else 0.0),
         "sda_setup_margin": None}
-    out.pick("scl-frequency", None, [(max_margin(clock, lim.f_max), clock, lim.f_max)], 0.0, "Hz")
+    out.pick("scl-frequency", None, [le(clock, lim.f_max)], 0.0, "Hz")
     slow = [(ctx.parts.timing(d).f_max, d.ref) for d in seg.devices
             if not d.is_controller and not d.is_bridge and ctx.parts.timing(d).f_max is not None]
     if slow:
-        out.pick("device-speed", None, [(max_margin(clock, f), clock, f) for f, _ in slow], 0.0,
+        out.pick("device-speed", None, [le(clock, f) for f, _ in slow], 0.0,
                  "Hz", [ref for _, ref in slow])
     # -- SDA data setup
     tr_sda = figs["sda"]["rise_time"]
-    def drives_sda(d, seg):
-        pin = ctx.parts.pins(d, SIGNALS["sda"], seg.supply)
-        return pin is not None and pin.open_drain
+    def drives_sda(d, seg):  # its pin as the segment's SDA line holds it
+        taps = ctx.by_id[seg.id].lines["sda"].taps
+        return any(t.dev is d and t.pin.open_drain for t in taps)
 
     sources = list(data_sources(s.index, ctx.ctrl_seg, [(o.index, o.seg) for o in ctx.segs],
                                 ctrl, ctx.delay, drives_sda))
     if sources:
         budgets = [t_low - (ctx.parts.timing(d).t_vd_dat + extra) - tr_sda
                    for d, extra in sources]
-        out.pick("setup-time", None, [(min_margin(b, lim.t_su_dat), b, lim.t_su_dat)
-                                      for b in budgets], warn, "s", [d.ref for d, _ in sources])
-        figs["segment"]["sda_setup_margin"] = out.checks[-1].value - lim.t_su_dat
+        st = out.pick("setup-time", None, [ge(b, lim.t_su_dat) for b in budgets], warn, "s",
+                      [d.ref for d, _ in sources])
+        figs["segment"]["sda_setup_margin"] = lambda: st.value - lim.t_su_dat
 
 
 def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
@@ -277,7 +308,7 @@ def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
             continue
         names.append(t.label)
         am = _corner(t.pin.abs_max, t, v, "min")
-        rows.append((max_margin(v, am), v, am))
+        rows.append(le(v, am))
         follows = np.logical_and(not t.own, t.pin.abs_follows)
         warns.append(np.where(follows, 0.0, warn))
     if rows:
@@ -294,7 +325,7 @@ def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
         hi = t.rail.max(axis=1, keepdims=True)
         m, low_side = supply_margin(lo, hi, s_min, s_max)
         names.append(t.label)
-        rows.append((m, np.where(low_side, lo, hi), np.where(low_side, s_min, s_max)))
+        rows.append(given(m, np.where(low_side, lo, hi), np.where(low_side, s_min, s_max)))
     if rows:
         out.pick("supply-range", None, rows, 0.0, "V", names)
     # -- power states
@@ -335,8 +366,7 @@ def _bridge_checks(ctx, s: _Seg, out: _Out) -> None:
         facing = [(r, sig) for sig in SIGNALS for r in s.lines[sig].receivers
                   if r.tap.dev.ref != d.ref]
         if facing:
-            out.pick("bridge-offset", None, [(max_margin(off, r.v_il), off, r.v_il)
-                                             for r, _ in facing], warn, "V",
+            out.pick("bridge-offset", None, [le(off, r.v_il) for r, _ in facing], warn, "V",
                      [f"{r.tap.label} ({sig.upper()})" for r, sig in facing])
     if offsets:
         out.truth("bridge-offset-facing", None, len(offsets) < 2)
@@ -382,13 +412,17 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
     parts = _Parts(lim, swap)
     # the engine's corners of the design as it stands: every variant is the design, whose
     # pull-ups the gathering has chosen already (WorstCase.resistor takes them)
-    chooses = scenario.chooses and not (swap is None and type(scenario) is WorstCase)
+    own = swap is None and type(scenario) is WorstCase
+    chooses = scenario.chooses and not own
     segs: list[_Seg] = []
     for i, (seg, sin) in enumerate(zip(bus.segments, seg_ins, strict=True)):
         v = np.asarray(scenario.rails(seg), dtype=float)
-        board = scenario.board(bus, seg, sin.lines["sda"].cb_parts)
-        lines = {sig: _line(bus, seg, sig, fn, v, parts, scenario, lim, board)
-                 for sig, fn in SIGNALS.items()}
+        if own:  # the gathering's lines: the pins are not read again
+            lines = {sig: line_from(sin.lines[sig], seg, parts, scenario) for sig in SIGNALS}
+        else:
+            board = scenario.board(bus, seg, sin.lines["sda"].cb_parts)
+            lines = {sig: _line(bus, seg, sig, fn, v, parts, scenario, lim, board)
+                     for sig, fn in SIGNALS.items()}
         s = _Seg(seg, i, v, scenario.spread(seg), lines)
         if chooses:
             _choose(s)
@@ -402,6 +436,7 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
         _couple(segs, joins, chooses)
     ctx = _Ctx()
     ctx.lim, ctx.segs, ctx.links, ctx.parts, ctx.n = lim, segs, joins, parts, n
+    ctx.by_id = {s.seg.id: s for s in segs}
     ctx.warn = design.warn_margin
     ctx.clock = bus.clock if bus.clock is not None else lim.f_max
     ctx.controller, ctx.ctrl_seg = controller_of(bus, pairs)
@@ -413,13 +448,20 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
         for ln in s.lines.values():
             _line_checks(ctx, s, ln, out, figs)
         _segment_checks(ctx, s, out, figs)
-        result.segments.append(SegmentBatch(s.seg.id, out.checks, _figures(s, figs, out)))
+        checks = out.finish()
+        result.segments.append(SegmentBatch(s.seg.id, checks, _figures(s, figs, out)))
     return result
 
 
 def _figures(s: _Seg, figs: dict, out: _Out) -> dict:
     """A segment's figures, each an array over the variants: the one-bus engine's (the
-    worse of the two lines, each line's own, the segment's)."""
+    worse of the two lines, each line's own, the segment's); a figure that is a check's
+    value is asked for once the checks are finished."""
+    for group in figs.values():
+        for name, x in group.items():
+            if callable(x):
+                group[name] = x()
+
     def col(x):
         return None if x is None else out._n(np.asarray(x, dtype=float).reshape(-1))
 

@@ -108,79 +108,102 @@ class BusBatch:
                 yield s.id, c
 
 
+def le(value, limit):
+    """A row of a check that ``value <= limit`` (margin ``(limit − value)/|limit|``)."""
+    return (value, limit, 1.0, None)
+
+
+def ge(value, limit):
+    """A row of a check that ``value >= limit`` (margin ``(value − limit)/|limit|``)."""
+    return (value, limit, -1.0, None)
+
+
+def given(margin, value, limit):
+    """A row whose margin is worked out already. [1]"""
+    return (value, limit, 0.0, margin)
+
+
+class _Pending:
+    """A check of :meth:`_Out.pick` whose worst is found in :meth:`_Out.finish`."""
+
+    __slots__ = ("chk", "r0", "r1", "k", "warn", "per_row", "single")
+
+    def __init__(self, chk, r0, r1, k, warn, per_row, single):
+        self.chk, self.r0, self.r1, self.k = chk, r0, r1, k
+        self.warn, self.per_row, self.single = warn, per_row, single
+
+
+def _corners(rows) -> int:
+    """The number of rail corners of a check's rows (the last axis, broadcast). [1]"""
+    k = 1
+    for r in rows:
+        for x in r:
+            shape = getattr(x, "shape", None)  # a Python number or None has none
+            if shape and shape[-1] > k:
+                k = shape[-1]
+    return k
+
+
 class _Out:
+    """The checks of one segment, in the engine's order.  :meth:`pick` records a check's
+    rows; :meth:`finish` works out the margins of every recorded row of the segment in
+    one array, then each check's worst row and corner, status, and what :meth:`after`
+    asked for."""
+
     def __init__(self, seg_id: str, n: int):
         self.seg_id, self.n = seg_id, n
         self.checks: list[BatchCheck] = []
+        self._rows: list = []
+        self._pending: list[_Pending] = []
+        self._after: list = []
 
     def _n(self, x):
         return _column(np.asarray(x, dtype=float), self.n)
 
-    def pick(self, id, signal, rows, warn, unit, names=None, per_row=False):
-        """The worst (row, corner) of margin arrays: ``rows`` of (margin, value, limit)
-        and optionally a per-row warning threshold.  The check keeps, per variant, the
-        row and the corner its worst came from (:attr:`BatchCheck.row`, ``corner``) and
-        ``names``, what each row is; with ``per_row``, each row's own worst margin too
-        (:attr:`BatchCheck.row_margins`)."""
-        if self.n == 1 and len(rows) == 1 and np.size(rows[0][0]) > 1:
-            self._pick_one(id, signal, rows, warn, unit, names)  # one row, its corners
-            if per_row:
-                self.checks[-1].row_margins = self.checks[-1].margin[:, None]
-            return
-        # a margin has the shape of its value and limit broadcast (a row whose value
-        # does not fails loudly at the assignment below)
-        n, k = np.broadcast_shapes(*[np.shape(r[0]) for r in rows], (self.n, 1))
-        if len(rows) == 1 and k == 1 and not isinstance(warn, (list, tuple)):
-            m, v, lim = rows[0][:3]  # columns (or one value), made (n,) by add
-            self.add(id, signal, v, lim, m, status_codes(m, warn), unit)
-            chk = self.checks[-1]
-            chk.names = names
-            if per_row:
-                chk.row_margins = chk.margin[:, None]
-            return
-        # (margin, value, limit) × variant × row × corner, filled by broadcasting
-        # assignment (one buffer rather than a broadcast view and a stack per array)
-        buf = np.empty((3, n, len(rows), k))
-        for j, r in enumerate(rows):
-            buf[0, :, j] = r[0]
-            buf[1, :, j] = r[1]
-            buf[2, :, j] = r[2]
-        flat = buf.reshape(3, n, -1)
-        m = flat[0]
-        idx = np.argmin(np.where(m != m, -np.inf, m), axis=1)
-        margin, value, limit = flat[:, np.arange(n), idx]
-        row = idx // k
-        if isinstance(warn, (list, tuple)):
-            w = np.empty((n, len(warn)))
-            for j, x in enumerate(warn):
-                w[:, j] = np.reshape(x, (-1,)) if np.ndim(x) else x
-            warn = w[np.arange(n), row]
-        self.add(id, signal, value, limit, margin, status_codes(margin, warn), unit)
-        chk = self.checks[-1]
-        chk.row, chk.corner, chk.names = row, idx % k if k > 1 else None, names
-        if per_row:  # each row at its own worst corner (NaN counted as the worst)
-            mm = buf[0]
-            at = np.argmin(np.where(mm != mm, -np.inf, mm), axis=2)[..., None]
-            chk.row_margins = np.take_along_axis(mm, at, axis=2)[..., 0]
+    def pick(self, id, signal, rows, warn, unit, names=None, per_row=False) -> BatchCheck:
+        """A check over ``rows`` (:func:`le`, :func:`ge`, :func:`given`, each of shape
+        ``(N or 1, corners or 1)``) and a warning threshold (one, or one per row).  Its
+        worst (row, corner) per variant is found in :meth:`finish`: the check keeps the
+        row and the corner (:attr:`BatchCheck.row`, ``corner``) and ``names``, what each
+        row is; with ``per_row``, each row's own worst margin too
+        (:attr:`BatchCheck.row_margins`).  Returns the check (filled by :meth:`finish`)."""
+        chk = BatchCheck(id, self.seg_id, signal, None, None, None, None, unit, names=names)
+        self.checks.append(chk)
+        k = _corners(rows)
+        r0 = len(self._rows)
+        self._rows.extend(rows)
+        single = len(rows) == 1 and k == 1 and not isinstance(warn, (list, tuple))
+        self._pending.append(_Pending(chk, r0, len(self._rows), k, warn, per_row, single))
+        return chk
 
-    def _pick_one(self, id, signal, rows, warn, unit, names):
-        """:meth:`pick` for one variant, in plain Python over the few numbers it has (the
-        same order, NaN the worst, the first of equal margins): faster than the arrays
-        for one row at its corners, slower for many rows."""
-        best, k = None, 1
-        for j, r in enumerate(rows):
-            ms = np.ravel(r[0]).tolist()
-            k = max(k, len(ms))
-            for c, m in enumerate(ms):
-                key = -math.inf if m != m else m
-                if best is None or key < best[0]:
-                    best = (key, j, c)
-        _, j, c = best
-        margin, value, limit = (np.ravel(x)[c if np.size(x) > 1 else 0] for x in rows[j][:3])
-        w = warn[j] if isinstance(warn, (list, tuple)) else warn
-        self.add(id, signal, value, limit, margin, status_codes(margin, w), unit)
-        chk = self.checks[-1]
-        chk.row, chk.corner, chk.names = np.array([j]), np.array([c]) if k > 1 else None, names
+    def after(self, fn) -> None:
+        """Call ``fn()`` once :meth:`finish` has filled the checks."""
+        self._after.append(fn)
+
+    def finish(self) -> list[BatchCheck]:
+        """Every recorded check's margin, worst row and corner, value, limit and status
+        (NaN counted as the worst margin; the first of equal margins)."""
+        if self._pending:
+            n, rows = self.n, self._rows
+            k = max(p.k for p in self._pending)
+            # (value, limit, sense, given margin) × variant × row × corner, filled by
+            # broadcasting assignment
+            buf = np.empty((4, n, len(rows), k))
+            for j, (v, lim, sense, m) in enumerate(rows):
+                buf[0, :, j] = v
+                buf[1, :, j] = lim
+                buf[2, :, j] = sense
+                buf[3, :, j] = 0.0 if m is None else m
+            margin = _margins(buf)
+            if n == 1:
+                _finish_one(self._pending, margin[0], buf[0, 0], buf[1, 0])
+            else:
+                for p in self._pending:
+                    _finish_many(p, margin, buf[0], buf[1], n)
+        for fn in self._after:
+            fn()
+        self._rows, self._pending, self._after = [], [], []
+        return self.checks
 
     def add(self, id, signal, value, limit, margin, status, unit=""):
         self.checks.append(BatchCheck(
@@ -193,6 +216,78 @@ class _Out:
 
     def truth(self, id, signal, ok):
         self.add(id, signal, None, None, None, np.where(np.asarray(ok), 0, 2))
+
+
+def _margins(buf):
+    """The margins of stacked rows (:func:`pinlib.model.result.max_margin` where the
+    sense is 1, ``min_margin`` where it is −1, the given margin where 0). [1]"""
+    value, limit, sense, known = buf
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        excess = np.where(sense > 0, limit - value, value - limit)
+        m = excess / np.abs(limit)
+    zero = limit == 0
+    if zero.any():  # a zero limit: met (+inf) or not (−inf)
+        m = np.where(zero, np.where(excess >= 0, math.inf, -math.inf), m)
+    return np.where(sense == 0, known, m)
+
+
+def _status(m: float, warn: float) -> int:
+    """:func:`pinlib.model.result.status_codes` of one margin."""
+    return 2 if m != m or m < 0 else (1 if m < warn else 0)
+
+
+def _finish_one(pending, margin, value, limit) -> None:
+    """:meth:`_Out.finish` for one variant, in plain Python over the few numbers."""
+    m, v, lim = margin.tolist(), value.tolist(), limit.tolist()
+    for p in pending:
+        best, worst_of = None, []
+        for j in range(p.r0, p.r1):
+            row_best = None
+            for c in range(p.k):
+                x = m[j][c]
+                key = -math.inf if x != x else x
+                if row_best is None or key < row_best[0]:
+                    row_best = (key, c)
+            worst_of.append(m[j][row_best[1]])
+            if best is None or row_best[0] < best[0]:
+                best = (row_best[0], j, row_best[1])
+        _, j, c = best
+        w = p.warn[j - p.r0] if isinstance(p.warn, (list, tuple)) else p.warn
+        w = float(np.ravel(w)[0]) if np.ndim(w) else float(w)
+        chk = p.chk
+        chk.margin, chk.value, chk.limit = np.array([m[j][c]]), np.array([v[j][c]]), \
+            np.array([lim[j][c]])
+        chk.status = np.array([_status(m[j][c], w)], dtype=np.int8)
+        chk.row = None if p.single else np.array([j - p.r0])
+        chk.corner = np.array([c]) if p.k > 1 else None
+        if p.per_row:
+            chk.row_margins = np.array([worst_of])
+
+
+def _finish_many(p: _Pending, margin, value, limit, n: int) -> None:
+    """:meth:`_Out.finish` of one check over many variants."""
+    sl = (slice(None), slice(p.r0, p.r1), slice(0, p.k))
+    mm = margin[sl]
+    flat = mm.reshape(n, -1)
+    idx = np.argmin(np.where(flat != flat, -np.inf, flat), axis=1)
+    ar = np.arange(n)
+    chk = p.chk
+    chk.margin = flat[ar, idx]
+    chk.value = value[sl].reshape(n, -1)[ar, idx]
+    chk.limit = limit[sl].reshape(n, -1)[ar, idx]
+    row = idx // p.k
+    warn = p.warn
+    if isinstance(warn, (list, tuple)):
+        w = np.empty((n, len(warn)))
+        for j, x in enumerate(warn):
+            w[:, j] = np.reshape(x, (-1,)) if np.ndim(x) else x
+        warn = w[ar, row]
+    chk.status = _column(status_codes(chk.margin, warn), n)
+    chk.row = None if p.single else row
+    chk.corner = idx % p.k if p.k > 1 else None
+    if p.per_row:  # each row at its own worst corner (NaN counted as the worst)
+        at = np.argmin(np.where(mm != mm, -np.inf, mm), axis=2)[..., None]
+        chk.row_margins = np.take_along_axis(mm, at, axis=2)[..., 0]
 
 
 def _column(a: np.ndarray, n: int) -> np.ndarray:

@@ -47,7 +47,12 @@ def rise_time(rp, cb, rise_factor=RISE_30_70):
     rp = _non_negative(rp, "rp", "[Ω]")
     cb = _non_negative(cb, "cb", "[F]")
     rise_factor = _positive(rise_factor, "rise_factor", "[1]")
-    return _out(rise_factor * rp * cb)
+    return _out(_rise_time(rp, cb, rise_factor))
+
+
+def _rise_time(rp, cb, rise_factor):
+    """:func:`rise_time` without its input checks."""
+    return rise_factor * rp * cb
 
 
 def _current_source_fall(rp, cb, vdd, i, v_from, v_to):
@@ -142,13 +147,18 @@ def fall_time_bound(rp, cb, vdd, v_ol, i_ol, v_hi, v_lo, r_series=0.0):
     if not np.all(v_hi > v_lo):
         raise InputError(M.UPPER_NOT_ABOVE_LOWER, field="v_hi", value=v_hi,
                          expected="v_hi > v_lo [V]")
+    return _out(_fall_time_bound(rp, cb, vdd, v_ol, i_ol, v_hi, v_lo, r_s))
+
+
+def _fall_time_bound(rp, cb, vdd, v_ol, i_ol, v_hi, v_lo, r_s):
+    """:func:`fall_time_bound` without its input checks."""
     r = v_ol / i_ol + r_s
     v_knee = i_ol * r
     a_to = np.maximum(v_lo, v_knee)
     t_a = np.where(v_hi > a_to, _current_source_fall(rp, cb, vdd, i_ol, v_hi, a_to), 0.0)
     b_from = np.minimum(v_hi, v_knee)
     t_b = np.where(b_from > v_lo, _resistive_fall(rp, cb, vdd, r, b_from, v_lo), 0.0)
-    return _out(t_a + t_b)
+    return t_a + t_b
 
 
 def scl_frequency(t_low, t_high, tr, tf):

@@ -92,10 +92,16 @@ def low_level(vdd, rp, r_sink, r_series=0.0):
     """
     vdd = _non_negative(vdd, "vdd", "[V]")
     rp = _positive(rp, "rp", "[Ω]", allow_inf=True)
-    r_low = _non_negative(r_sink, "r_sink", "[Ω]") + _non_negative(r_series, "r_series", "[Ω]")
+    return _out(_low_level(vdd, rp, _non_negative(r_sink, "r_sink", "[Ω]"),
+                           _non_negative(r_series, "r_series", "[Ω]")))
+
+
+def _low_level(vdd, rp, r_sink, r_series):
+    """:func:`low_level` without its input checks."""
+    r_low = r_sink + r_series
     # written with 1/rp so that rp = inf (no pull-up) gives 0 V
     g = 1.0 / rp
-    return _out(vdd * r_low * g / (1.0 + r_low * g))
+    return vdd * r_low * g / (1.0 + r_low * g)
 
 
 def sink_current(vdd, rp, r_sink, r_series=0.0):
@@ -119,9 +125,15 @@ def sink_current(vdd, rp, r_sink, r_series=0.0):
     """
     vdd = _non_negative(vdd, "vdd", "[V]")
     rp = _positive(rp, "rp", "[Ω]", allow_inf=True)
-    r_low = _non_negative(r_sink, "r_sink", "[Ω]") + _non_negative(r_series, "r_series", "[Ω]")
+    return _out(_sink_current(vdd, rp, _non_negative(r_sink, "r_sink", "[Ω]"),
+                              _non_negative(r_series, "r_series", "[Ω]")))
+
+
+def _sink_current(vdd, rp, r_sink, r_series):
+    """:func:`sink_current` without its input checks."""
+    r_low = r_sink + r_series
     g = 1.0 / rp
-    return _out(vdd * g / (1.0 + r_low * g))
+    return vdd * g / (1.0 + r_low * g)
 
 
 def high_level(vdd, rp, leakage):
@@ -149,7 +161,12 @@ def high_level(vdd, rp, leakage):
     vdd = _non_negative(vdd, "vdd", "[V]")
     rp = _positive(rp, "rp", "[Ω]")
     leakage = _non_negative(leakage, "leakage", "[A]")
-    return _out(vdd - rp * leakage)
+    return _out(_high_level(vdd, rp, leakage))
+
+
+def _high_level(vdd, rp, leakage):
+    """:func:`high_level` without its input checks."""
+    return vdd - rp * leakage
 
 
 def static_power(vdd, rp, r_sink, r_series=0.0):
