@@ -129,7 +129,7 @@ SPECS = [
     # no typed quantity here: sliders and toggle buttons only
     Spec("06-crosstalk.ipynb",
          required=("Spacing", "Parallel length", "Aggressor edge", "Show"),
-         change=("Show", "held low"),
+         change=("Show", "low"),
          bad=()),
 ]
 

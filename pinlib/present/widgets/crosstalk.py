@@ -103,8 +103,10 @@ class CrosstalkExplorer(_Panel):
                                    c.length)
         edge = self.aggressor.edge_time
         self.edge_time = self._slider("Aggressor edge", _options(EDGES, "s", edge), edge)
-        self.show = W.ToggleButtons(options=["both", "held low", "held high"], value="both",
-                                    description="Show", style=style(button_width="80px"),
+        # short labels so the three buttons fit the control column on one row
+        self.show = W.ToggleButtons(options=[("both", "both"), ("low", "held low"),
+                                             ("high", "held high")], value="both",
+                                    description="Show", style=style(button_width="64px"),
                                     layout=toggle_layout())
         self.show.observe(lambda _c: self._draw_waves(), names="value")
         self._choice("show", self.show)
