@@ -29,8 +29,11 @@ from pinlib.model.design import Bus, Design
 __all__ = ["CHUNK", "evaluate_batched", "batched_note"]
 
 #: Candidates whose edges are solved together (and held in memory until their
-#: evaluations end): a few tens of megabytes of waveforms.
-CHUNK = 64
+#: evaluations end): about 40 MB of waveforms at the demo's lengths.  The more candidates,
+#: the fewer solver calls (each is one time step and chain of sections, and the steps of
+#: a position's candidates take few distinct values): 256 candidates take about as many
+#: calls as 64.
+CHUNK = 256
 
 
 def evaluate_batched(design: Design, ref: str, parts: list[Part],
