@@ -119,3 +119,22 @@ def test_an_edge_takes_its_figures_from_the_memo():
     assert plain.t_edge == float(wf.edge_time(plain.t, plain.v, 3.3))
     own = wf.recrossings(plain.t, plain.v, 1.0, 2.0)
     assert plain.recrossings(1.0, 2.0) == own
+
+
+def test_an_edge_with_batched_figures_makes_its_record_when_read():
+    # the record of an edge whose figures came from the memo is the one simulate_edge
+    # makes itself, sample for sample (derived from the same expression on the same unit)
+    st = [waves.Stretch(0.02, 50.0, 1e-10, 2e-12, "")]
+    plain = waves.simulate_edge(st, 30.0, 1e-9, 5e-12, 3.3, 0.0, distributed=True,
+                                edge="fall")
+    with memo.run_scope():
+        key = waves.unit_edge_key(st, 30.0, 1e-9, 5e-12, True)
+        memo.keep(waves.figures_key(key, 3.3, 0.0),
+                  (plain.t_edge, plain.overshoot, plain.undershoot))
+        lazy = waves.simulate_edge(st, 30.0, 1e-9, 5e-12, 3.3, 0.0, distributed=True,
+                                   edge="fall")
+    assert type(lazy) is not type(plain)  # the figures were taken, the record not made
+    assert np.array_equal(lazy.t, plain.t) and np.array_equal(lazy.v, plain.v)
+    assert lazy.crossing(1.2) == plain.crossing(1.2)
+    assert (lazy.edge, lazy.v_from, lazy.v_to, lazy.t_edge, lazy.settled) == (
+        plain.edge, plain.v_from, plain.v_to, plain.t_edge, plain.settled)

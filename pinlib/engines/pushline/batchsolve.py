@@ -35,14 +35,14 @@ from pinlib.core.errors import PinlibError
 from pinlib.engines import memo
 from pinlib.engines.pushline.analysis import LineAnalysis, _others
 from pinlib.engines.pushline.batchfigures import EdgeUse, store_figures
-from pinlib.engines.pushline.drive import _thresholds, edge_plan
+from pinlib.engines.pushline.drive import _thresholds, edge_plan, ref_times
 from pinlib.engines.pushline.line import (
     LineInputs,
     _driver_models,
     _electrical_length,
     line_stretches,
 )
-from pinlib.engines.pushline.termination import auto_ideal, auto_series_resistor
+from pinlib.engines.pushline.termination import auto_ideal, chosen_series_resistor
 from pinlib.engines.pushline.waves import edge_grid, is_settled, unit_edge_key
 from pinlib.model.result import LineResult
 from pinlib.physics import waveform as wf
@@ -156,7 +156,7 @@ def _requests(li: LineInputs) -> list[tuple]:
         # a long line: "auto" chooses Z0 - r_out (a short one only when a check fails)
         r_drv, ideal = auto_ideal(a)
         if ideal is not None:
-            rs = float(auto_series_resistor(a.z0, r_drv))
+            rs = chosen_series_resistor(a.z0, r_drv)
             if rs > 0:
                 options.append(rs)
     out = []
@@ -167,6 +167,10 @@ def _requests(li: LineInputs) -> list[tuple]:
             plan = edge_plan(a.stretches, d, a.models[d.ref], others, rs,
                              li.line.extra_capacitance, long=a.long, r_pullup=rp,
                              v_pullup=vp)
+            try:
+                ref_times(d, a.models[d.ref], plan, rp)  # kept in the run's memo
+            except PinlibError:
+                pass  # the analysis meets it again and reports it
             levels, pairs = _reads(a, d, others)
             # the ringing check reads the fast corner's edges where a driver has one
             pairs = () if a.models[d.ref].fast is not None else pairs

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import functools
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass
@@ -144,11 +145,35 @@ def simulate_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float,
     t, unit, settled = memo.remember(
         key, lambda: _unit_edge(stretches, r_source, t_ramp, c_far, distributed))
     swing = v_to - v_from
-    v = v_from + swing * unit
     # a batched study may have read them off its batch (batchfigures); else computed here
     figs = memo.held(figures_key(key, v_from, v_to))
-    t_edge, over, under = _figures(t, v, v_from, v_to) if figs is None else figs
-    return EdgeWave(edge, t.copy(), v, v_from, v_to, t_edge, over, under, bool(settled), key)
+    if figs is None:
+        v = v_from + swing * unit
+        return EdgeWave(edge, t.copy(), v, v_from, v_to, *_figures(t, v, v_from, v_to),
+                        bool(settled), key)
+    return _UnitEdgeWave(edge, (t, unit), v_from, v_to, *figs, bool(settled), key)
+
+
+class _UnitEdgeWave(EdgeWave):
+    """An :class:`EdgeWave` whose figures came from a batch: its record (``t``, ``v``) is
+    made from the unit response when first read, as :func:`simulate_edge` makes it (a
+    ranking reads only the figures of most edges)."""
+
+    def __init__(self, edge: str, unit: tuple, v_from: float, v_to: float, t_edge: float,
+                 overshoot: float, undershoot: float, settled: bool, key: tuple):
+        for name, value in (("edge", edge), ("v_from", v_from), ("v_to", v_to),
+                            ("t_edge", t_edge), ("overshoot", overshoot),
+                            ("undershoot", undershoot), ("settled", settled),
+                            ("key", key), ("_unit", unit)):
+            object.__setattr__(self, name, value)
+
+    @functools.cached_property
+    def t(self) -> np.ndarray:
+        return self._unit[0].copy()
+
+    @functools.cached_property
+    def v(self) -> np.ndarray:
+        return self.v_from + (self.v_to - self.v_from) * self._unit[1]
 
 
 def _figures(t: np.ndarray, v: np.ndarray, v_from: float, v_to: float) -> tuple:
