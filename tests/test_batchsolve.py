@@ -12,6 +12,7 @@ from pinlib.engines.dispatch import evaluate_bus
 from pinlib.engines.pushline import batchsolve, waves
 from pinlib.engines.pushpull import line_inputs
 from pinlib.model.design import load_design
+from pinlib.physics import waveform as wf
 
 DEMO = Path(__file__).resolve().parents[1] / "workbooks" / "designs" / "demo-board.toml"
 
@@ -66,3 +67,74 @@ def test_the_engine_takes_the_batched_edges(monkeypatch):
             assert ca.id == cb.id and ca.status == cb.status
             if isinstance(ca.value, float):
                 assert np.isclose(ca.value, cb.value, rtol=1e-9, atol=0.0)
+
+
+def test_the_figures_read_off_the_batch_are_the_engines_own():
+    # every figure the prefetch stores (edge time, overshoot, undershoot, threshold
+    # crossings, re-crossings) is, to the last bit, what the engine computes from the
+    # same record on its own: the same operations on the same samples, one row at a time
+    # (derived from IEEE 754: element-wise operations round each element alike)
+    d = load_design(DEMO)
+    inputs = _inputs(d, ["display-controller-spi", "nor-flash-spi", "adc-spi", "dac-spi"])
+    with memo.run_scope() as held:
+        batchsolve.prefetch(inputs)
+        counts = {"pushline.edge_figures": 0, "pushline.crossing": 0,
+                  "pushline.recrossings": 0}
+        for key, got in list(held.items()):
+            if key[0] not in counts:
+                continue
+            counts[key[0]] += 1
+            unit_key, v_from, v_to = key[1:4]
+            t, unit, _ = held[unit_key]
+            v = v_from + (v_to - v_from) * unit  # the record simulate_edge makes
+            if key[0] == "pushline.edge_figures":
+                assert got == waves._figures(t, v, v_from, v_to)
+            elif key[0] == "pushline.crossing":
+                edge, level = key[4:]
+                assert got == float(wf.threshold_delay(t, v, level, edge=edge))
+            else:
+                edge, v_il, v_ih = key[4:]
+                own = wf.recrossings(t, v, v_il, v_ih, edge=edge)
+                assert got.entry == own.entry and got.opposite == own.opposite
+                assert (got.t_settled == own.t_settled
+                        or (np.isnan(got.t_settled) and np.isnan(own.t_settled)))
+        assert all(n > 0 for n in counts.values()), counts
+
+
+def test_an_edge_takes_its_figures_from_the_memo():
+    # an edge from simulate_edge reads its figures, crossings and re-crossings under its
+    # unit key: a value kept there first is the one it gives (so a batch's are used)
+    st = [waves.Stretch(0.02, 50.0, 1e-10, 2e-12, "")]
+    with memo.run_scope():
+        key = waves.unit_edge_key(st, 30.0, 1e-9, 5e-12, True)
+        memo.keep(waves.figures_key(key, 0.0, 3.3), (1.0, 2.0, 3.0))
+        memo.keep(waves.crossing_key(key, 0.0, 3.3, "rise", 1.5), 4.0)
+        w = waves.simulate_edge(st, 30.0, 1e-9, 5e-12, 0.0, 3.3, distributed=True,
+                                edge="rise")
+        assert (w.t_edge, w.overshoot, w.undershoot) == (1.0, 2.0, 3.0)
+        assert w.crossing(1.5) == 4.0
+        assert w.crossing(1.6) == float(wf.threshold_delay(w.t, w.v, 1.6))
+    plain = waves.simulate_edge(st, 30.0, 1e-9, 5e-12, 0.0, 3.3, distributed=True,
+                                edge="rise")
+    assert plain.t_edge == float(wf.edge_time(plain.t, plain.v, 3.3))
+    own = wf.recrossings(plain.t, plain.v, 1.0, 2.0)
+    assert plain.recrossings(1.0, 2.0) == own
+
+
+def test_an_edge_with_batched_figures_makes_its_record_when_read():
+    # the record of an edge whose figures came from the memo is the one simulate_edge
+    # makes itself, sample for sample (derived from the same expression on the same unit)
+    st = [waves.Stretch(0.02, 50.0, 1e-10, 2e-12, "")]
+    plain = waves.simulate_edge(st, 30.0, 1e-9, 5e-12, 3.3, 0.0, distributed=True,
+                                edge="fall")
+    with memo.run_scope():
+        key = waves.unit_edge_key(st, 30.0, 1e-9, 5e-12, True)
+        memo.keep(waves.figures_key(key, 3.3, 0.0),
+                  (plain.t_edge, plain.overshoot, plain.undershoot))
+        lazy = waves.simulate_edge(st, 30.0, 1e-9, 5e-12, 3.3, 0.0, distributed=True,
+                                   edge="fall")
+    assert type(lazy) is not type(plain)  # the figures were taken, the record not made
+    assert np.array_equal(lazy.t, plain.t) and np.array_equal(lazy.v, plain.v)
+    assert lazy.crossing(1.2) == plain.crossing(1.2)
+    assert (lazy.edge, lazy.v_from, lazy.v_to, lazy.t_edge, lazy.settled) == (
+        plain.edge, plain.v_from, plain.v_to, plain.t_edge, plain.settled)

@@ -112,3 +112,20 @@ def test_kept_values_and_a_transient_block():
             assert memo.remember("c", lambda: 5) == 5
         assert memo.known("a") and not memo.known("b") and not memo.known("c")
     assert not memo.known("a")
+
+
+def test_held_and_nested_transient_blocks():
+    # held() gives a stored value or None without computing anything; a transient block
+    # inside another drops only its own keys, the outer one then its own (custom case)
+    assert memo.held("a") is None
+    with memo.run_scope() as held:
+        memo.keep("a", 1)
+        assert memo.held("a") == 1 and memo.held("z") is None and "z" not in held
+        with memo.transient():
+            memo.keep("b", 2)
+            with memo.transient():
+                memo.keep("c", 3)
+                memo.keep("a", 9)  # already held: not stored again
+            assert list(held) == ["a", "b"]
+            memo.keep("d", 4)
+        assert list(held) == ["a"] and held["a"] == 1

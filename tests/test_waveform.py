@@ -93,6 +93,44 @@ def test_recrossings_counts_both_thresholds():
 # --------------------------------------------------------------------------- lumped
 
 
+def test_records_of_different_lengths_in_one_batch():
+    # n_valid: each row's figures are those of its own record alone, to the last bit
+    # (derived from the definitions: the samples after a record's end are left out)
+    t = np.arange(400) * 1e-11
+    rows, lengths = [], [400, 250, 90, 37, 400]
+    for i in range(len(lengths)):
+        # ringing rises, some records shorter than the batch's time axis
+        rows.append(3.3 * (1 - np.exp(-t / (2e-10 + 1e-10 * i))
+                           * np.cos(t * (1.1e10 + 2e9 * i))))
+    v = np.array(rows)
+    n = np.array(lengths)
+    for j, k in enumerate(lengths):  # padding that would read otherwise: high and ringing
+        v[j, k:] = np.where(np.arange(400 - k) % 2, 5.0, -1.0)
+    got = {"edge": wf.edge_time(t, v, 3.3, n_valid=n),
+           "cross": wf.threshold_delay(t, v, np.full(5, 2.5), n_valid=n),
+           "fall": wf.threshold_delay(t, 3.3 - v, np.full(5, 0.8), edge="fall", n_valid=n),
+           "over": wf.overshoot(v, 3.3, n_valid=n),
+           "under": wf.undershoot(3.3 - v, n_valid=n)}
+    rc_ = wf.recrossings(t, v, 1.0, 2.3, n_valid=n)
+    for j, k in enumerate(lengths):
+        tj, vj = t[:k], v[j, :k]
+        own = {"edge": wf.edge_time(tj, vj, 3.3), "cross": wf.threshold_delay(tj, vj, 2.5),
+               "fall": wf.threshold_delay(tj, 3.3 - vj, 0.8, edge="fall"),
+               "over": wf.overshoot(vj, 3.3), "under": wf.undershoot(3.3 - vj)}
+        for name, x in own.items():
+            assert got[name][j] == x or (np.isnan(got[name][j]) and np.isnan(x)), name
+        r = wf.recrossings(tj, vj, 1.0, 2.3)
+        assert (rc_.entry[j], rc_.opposite[j]) == (r.entry, r.opposite)
+        assert rc_.t_settled[j] == r.t_settled or (np.isnan(rc_.t_settled[j])
+                                                    and np.isnan(r.t_settled))
+    # the cut records read otherwise than the full ones (the test can fail)
+    full = {"over": wf.overshoot(v, 3.3), "entry": wf.recrossings(t, v, 1.0, 2.3).entry}
+    assert not np.array_equal(got["over"], full["over"])
+    assert not np.array_equal(rc_.entry, full["entry"])
+    assert np.array_equal(wf.edge_time(t, v, 3.3, n_valid=np.full(5, 400)),
+                          wf.edge_time(t, v, 3.3))
+
+
 def test_lumped_is_ramp_through_rc():
     t = grid(20e-9)
     w = wf.lumped_response(t, VDD, T_RAMP, 50.0, 20e-12)

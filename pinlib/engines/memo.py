@@ -14,12 +14,13 @@ input is identical, and the numbers cannot differ from computing again.
 
 from __future__ import annotations
 
+import itertools
 from collections.abc import Callable, Hashable, Iterator
 from contextlib import contextmanager
 from contextvars import ContextVar
 from typing import TypeVar
 
-__all__ = ["run_scope", "remember", "active", "known", "keep", "transient"]
+__all__ = ["run_scope", "remember", "active", "known", "keep", "held", "transient"]
 
 T = TypeVar("T")
 
@@ -66,6 +67,14 @@ def known(key: Hashable) -> bool:
     return memo is not None and key in memo
 
 
+def held(key: Hashable):
+    """The value the scope holds under ``key``, or None (none held, or outside any
+    scope): for values only a batched study stores, which an engine computes itself
+    otherwise without keeping them."""
+    memo = _MEMO.get()
+    return None if memo is None else memo.get(key)
+
+
 def keep(key: Hashable, value) -> None:
     """Store a value computed elsewhere (a batched solve of the same inputs) under
     ``key``, unless the scope already holds one; nothing outside any scope."""
@@ -83,9 +92,12 @@ def transient() -> Iterator[None]:
     if memo is None:
         yield
         return
-    before = set(memo)
+    # A dict keeps its keys in the order they came, and nothing inside the block removes
+    # a key that was there before it: the block's own keys are those after the first
+    # ``before`` (its cost is what the block added, not what the scope holds).
+    before = len(memo)
     try:
         yield
     finally:
-        for key in [k for k in memo if k not in before]:
+        for key in list(itertools.islice(memo, before, None)):
             del memo[key]

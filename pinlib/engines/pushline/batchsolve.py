@@ -11,11 +11,13 @@ time step in one call: the grid ``arange(n + 1) * dt`` of a shorter record is th
 of a longer one's, and the solver is causal, so each edge is the first samples of the
 longest record of its group.  Each result goes into the run's memo under the exact key
 :func:`~pinlib.engines.pushline.waves.simulate_edge` asks for, and the analyses made
-afterwards take it there; an edge the prefetch did not solve (a lumped edge, a record
-that had not settled, a solve that warned, a series resistor "auto" chose on a short
-line) the engine solves itself, as it would without the prefetch.  So every figure is the
-engine's, from the same grid and solver; only rounding inside a batched solve can
-differ (a few units in the last place).
+afterwards take it there, with the figures they will read off each edge (edge time,
+overshoot, undershoot, threshold crossings, re-crossings: :mod:`pinlib.engines.pushline.
+batchfigures`, read over the whole batch at once); an edge the prefetch did not solve (a
+lumped edge, a record that had not settled, a solve that warned, a series resistor
+"auto" chose on a short line) the engine solves itself, as it would without the
+prefetch.  So every figure is the engine's, from the same grid and solver; only rounding
+inside a batched solve can differ (a few units in the last place).
 
 It needs an active :func:`pinlib.engines.memo.run_scope` (without one it does nothing),
 and the scope holds every edge solved until it ends: callers prefetch a bounded number
@@ -32,14 +34,15 @@ import numpy as np
 from pinlib.core.errors import PinlibError
 from pinlib.engines import memo
 from pinlib.engines.pushline.analysis import LineAnalysis, _others
-from pinlib.engines.pushline.drive import edge_plan
+from pinlib.engines.pushline.batchfigures import EdgeUse, store_figures
+from pinlib.engines.pushline.drive import _thresholds, edge_plan, ref_times
 from pinlib.engines.pushline.line import (
     LineInputs,
     _driver_models,
     _electrical_length,
     line_stretches,
 )
-from pinlib.engines.pushline.termination import auto_ideal, auto_series_resistor
+from pinlib.engines.pushline.termination import auto_ideal, chosen_series_resistor
 from pinlib.engines.pushline.waves import edge_grid, is_settled, unit_edge_key
 from pinlib.model.result import LineResult
 from pinlib.physics import waveform as wf
@@ -67,12 +70,14 @@ def prefetch(inputs: Iterable[LineInputs]) -> int:
     """
     if not memo.active():
         return 0
-    requests = {}
+    requests, uses = {}, {}
     for li in inputs:
-        for req in _requests(li):
+        for req, use in _requests(li):
             key = unit_edge_key(*req)
             if key not in requests and not memo.known(key):
                 requests[key] = req
+            if key in requests:
+                uses.setdefault(key, {})[use] = None
     groups: dict[tuple, list] = {}
     for key, (stretches, r_source, t_ramp, c_far, distributed) in requests.items():
         try:
@@ -88,7 +93,7 @@ def prefetch(inputs: Iterable[LineInputs]) -> int:
         start = 0
         while start < len(members):
             end = _batch_end(members, start)
-            stored += _solve(list(sections), members[start:end])
+            stored += _solve(list(sections), members[start:end], uses)
             start = end
     return stored
 
@@ -102,8 +107,9 @@ def _batch_end(members: list, start: int) -> int:
     return end
 
 
-def _solve(sections: list, batch: list) -> int:
-    """One distributed solve of a batch of unit edges on the longest of their grids."""
+def _solve(sections: list, batch: list, uses: dict) -> int:
+    """One distributed solve of a batch of unit edges on the longest of their grids, and
+    the figures read off them (``uses``: per key, the :class:`EdgeUse` asked for)."""
     t = batch[-1][1].t
     if not all(np.array_equal(t[:g.t.size], g.t) for _, g, _, _ in batch):
         return 0  # not one grid: left to the engine
@@ -117,19 +123,21 @@ def _solve(sections: list, batch: list) -> int:
             return 0
     if caught:
         return 0  # the engine solves these itself, so that its notes carry the warning
-    stored = 0
+    stored, rows = 0, []
     for j, (key, g, _, _) in enumerate(batch):
         unit = v[j, :g.t.size]  # views of the batch (the engine copies what it keeps)
         if is_settled(unit):
             memo.keep(key, (t[:g.t.size], unit, True))
             stored += 1
+            rows += [(j, g.t.size, key, use) for use in uses.get(key, ())]
+    store_figures(t, v, rows)
     return stored
 
 
 def _requests(li: LineInputs) -> list[tuple]:
-    """The edges the analysis of ``li`` will solve: ``(stretches, r_source, t_ramp,
-    c_far, distributed)`` each, by the engine's own steps; none when a step refuses (the
-    analysis itself then says why)."""
+    """The edges the analysis of ``li`` will solve: ``((stretches, r_source, t_ramp,
+    c_far, distributed), EdgeUse)`` each, by the engine's own steps; none when a step
+    refuses (the analysis itself then says why)."""
     try:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")  # the analysis notes its own warnings
@@ -148,16 +156,41 @@ def _requests(li: LineInputs) -> list[tuple]:
         # a long line: "auto" chooses Z0 - r_out (a short one only when a check fails)
         r_drv, ideal = auto_ideal(a)
         if ideal is not None:
-            rs = float(auto_series_resistor(a.z0, r_drv))
+            rs = chosen_series_resistor(a.z0, r_drv)
             if rs > 0:
                 options.append(rs)
     out = []
     for rs in options:
         for d in a.drivers:
             rp, vp = pullup.get(d.ref, (None, None))
-            plan = edge_plan(a.stretches, d, a.models[d.ref], _others(a.loads, d), rs,
+            others = _others(a.loads, d)
+            plan = edge_plan(a.stretches, d, a.models[d.ref], others, rs,
                              li.line.extra_capacitance, long=a.long, r_pullup=rp,
                              v_pullup=vp)
-            out.append((a.stretches, *plan.rise[:3], plan.rise_distributed))
-            out.append((a.stretches, *plan.fall[:3], plan.distributed))
+            try:
+                ref_times(d, a.models[d.ref], plan, rp)  # kept in the run's memo
+            except PinlibError:
+                pass  # the analysis meets it again and reports it
+            levels, pairs = _reads(a, d, others)
+            # the ringing check reads the fast corner's edges where a driver has one
+            pairs = () if a.models[d.ref].fast is not None else pairs
+            out.append(((a.stretches, *plan.rise[:3], plan.rise_distributed),
+                        EdgeUse(*plan.rise[3:5], "rise", levels, pairs)))
+            out.append(((a.stretches, *plan.fall[:3], plan.distributed),
+                        EdgeUse(*plan.fall[3:5], "fall", levels, pairs)))
     return out
+
+
+def _reads(a: LineAnalysis, d, others: list) -> tuple[tuple, tuple]:
+    """What the analysis reads off a driver's edges: the thresholds of every other pin
+    (its flights) and the (VIL, VIH) of every receiver with both (its ringing check)."""
+    levels = {}
+    for p in others:
+        for level in _thresholds(p):
+            levels[level] = None
+    pairs = {}
+    for rx in a.receivers:
+        v_il, v_ih = rx.level("v_il"), rx.level("v_ih")
+        if rx.ref != d.ref and v_il is not None and v_ih is not None and v_ih > v_il:
+            pairs[(v_il, v_ih)] = None
+    return tuple(levels), tuple(pairs)

@@ -233,22 +233,29 @@ def drive_case(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver
     """
     plan = edge_plan(stretches, driver, model, loads, rs, extra_c, long=long,
                      r_pullup=r_pullup, v_pullup=v_pullup)
-    c_test = _test_load(driver.device)
     rise = simulate_edge(stretches, *plan.rise, distributed=plan.rise_distributed,
                          edge="rise")
     fall = simulate_edge(stretches, *plan.fall, distributed=plan.distributed, edge="fall")
-    if driver.pin.drive == "open-drain":
-        rp, r_th = float(r_pullup), plan.fall[0]
-        ref = {"rise": _ref_time(0.0, rp * c_test),
-               "fall": _ref_time(model.t_ramp_fall, r_th * c_test)}
-    else:
-        ref = {"rise": _ref_time(model.t_ramp_rise, model.r_rise * c_test),
-               "fall": _ref_time(model.t_ramp_fall, model.r_fall * c_test)}
+    ref = ref_times(driver, model, plan, r_pullup)
     fast = (None, None)
     if driver.pin.drive != "open-drain" and model.fast is not None:
         fast = _fast_edges(stretches, model.fast, rs, plan.c_far, plan.v_high, long)
     return DriveCase(driver, model, rs, plan.c_far, plan.distributed, rise, fall, ref,
                      plan.v_low, plan.v_high, *fast)
+
+
+def ref_times(driver: Endpoint, model: drv.Driver, plan: EdgePlan,
+              r_pullup: float | None = None) -> dict:
+    """For each edge of :func:`drive_case`, when the driver's pin would cross the timing
+    reference level into its datasheet ``test_load`` (``DriveCase.ref``; a batched study
+    asks first, so that what a position's candidates share is worked out once). [s]"""
+    c_test = _test_load(driver.device)
+    if driver.pin.drive == "open-drain":
+        rp, r_th = float(r_pullup), plan.fall[0]
+        return {"rise": _ref_time(0.0, rp * c_test),
+                "fall": _ref_time(model.t_ramp_fall, r_th * c_test)}
+    return {"rise": _ref_time(model.t_ramp_rise, model.r_rise * c_test),
+            "fall": _ref_time(model.t_ramp_fall, model.r_fall * c_test)}
 
 
 def _ref_time(t_ramp: float, tau: float) -> float:

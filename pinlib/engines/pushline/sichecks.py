@@ -15,7 +15,6 @@ from pinlib.engines.pushline.rules import (
     UNDERSHOOT_RULE,
 )
 from pinlib.model.result import Check, check_max, check_min, rule_of_thumb
-from pinlib.physics import waveform as wf
 
 
 def _si_checks(a: LineAnalysis, cases: dict, clock: float | None, clock_line: bool,
@@ -111,8 +110,7 @@ def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
         if ref == rx.ref:
             continue
         for edge in ("rise", "fall"):
-            w = c.si_wave_at(rx.ref, edge)
-            got = wf.recrossings(w.t, w.v, v_il, v_ih, edge=edge)
+            got = c.si_wave_at(rx.ref, edge).recrossings(v_il, v_ih)
             prev = counts.get(edge, (0, 0))
             counts[edge] = (max(prev[0], int(got.entry)), max(prev[1], int(got.opposite)))
     total = sum(e for e, _ in counts.values())

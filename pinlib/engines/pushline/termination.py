@@ -8,6 +8,7 @@ import math
 import numpy as np
 
 from pinlib.core import eseries
+from pinlib.engines import memo
 from pinlib.engines.pushline.analysis import LineAnalysis, _cases, _figures_of, _fmt
 from pinlib.engines.pushline.rules import _TERMINATION_CURES, TERMINATION_RULE
 from pinlib.engines.pushline.sichecks import _si_checks
@@ -49,6 +50,13 @@ def auto_series_resistor(z0, r_out):
     return out[()] if out.ndim == 0 else out
 
 
+def chosen_series_resistor(z0: float, r_drv: float) -> float:
+    """:func:`auto_series_resistor` of one line, once per run for the same inputs (a
+    position's candidates mostly share their lines' drivers). [Ω]"""
+    return memo.remember(("pushline.auto_rs", z0, r_drv),
+                         lambda: float(auto_series_resistor(z0, r_drv)))
+
+
 def _solve_cases(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
                  notes: list) -> None:
     """The series resistor of the line (the design's, or chosen by "auto") and the final
@@ -81,7 +89,7 @@ def _auto_series(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
                if (not a.long and clean) else "no line impedance or push-pull driver")
         notes.append(f"auto series resistor: none ({why})")
         return
-    a.rs = float(auto_series_resistor(a.z0, r_drv))
+    a.rs = chosen_series_resistor(a.z0, r_drv)
     if a.rs > 0:
         a.unterminated = bare
         a.cases = _cases(a, a.rs, pullup)

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import functools
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass
@@ -44,6 +45,11 @@ class EdgeWave:
         Dip below the low level (fall) or 0 (rise). [V]
     settled : bool
         Whether the record ends within 1 % of the swing of ``v_to``. [1]
+    key : tuple or None
+        The unit response's memo key (:func:`unit_edge_key`) when the edge came from
+        :func:`simulate_edge`: its crossings and re-crossings are then taken from the
+        run's memo where a batched study put them (:mod:`pinlib.engines.pushline.
+        batchfigures`), else computed. [1]
     """
 
     edge: str
@@ -55,10 +61,24 @@ class EdgeWave:
     overshoot: float
     undershoot: float
     settled: bool
+    key: tuple | None = None
 
     def crossing(self, level: float) -> float:
         """First time the edge reaches ``level`` in its direction; NaN if never. [s]"""
-        return float(wf.threshold_delay(self.t, self.v, level, edge=self.edge))
+        got = None if self.key is None else memo.held(
+            crossing_key(self.key, self.v_from, self.v_to, self.edge, level))
+        if got is None:
+            got = float(wf.threshold_delay(self.t, self.v, level, edge=self.edge))
+        return got
+
+    def recrossings(self, v_il: float, v_ih: float) -> wf.Recrossings:
+        """Re-crossings of VIL / VIH after the edge (:func:`pinlib.physics.waveform.
+        recrossings`)."""
+        got = None if self.key is None else memo.held(
+            recrossings_key(self.key, self.v_from, self.v_to, self.edge, v_il, v_ih))
+        if got is None:
+            got = wf.recrossings(self.t, self.v, v_il, v_ih, edge=self.edge)
+        return got
 
 
 class _TooManySteps(InputError):
@@ -125,12 +145,60 @@ def simulate_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float,
     t, unit, settled = memo.remember(
         key, lambda: _unit_edge(stretches, r_source, t_ramp, c_far, distributed))
     swing = v_to - v_from
-    v = v_from + swing * unit
-    t_edge = float(wf.edge_time(t, v, v_to, v_initial=v_from))
+    # a batched study may have read them off its batch (batchfigures); else computed here
+    figs = memo.held(figures_key(key, v_from, v_to))
+    if figs is None:
+        v = v_from + swing * unit
+        return EdgeWave(edge, t.copy(), v, v_from, v_to, *_figures(t, v, v_from, v_to),
+                        bool(settled), key)
+    return _UnitEdgeWave(edge, (t, unit), v_from, v_to, *figs, bool(settled), key)
+
+
+class _UnitEdgeWave(EdgeWave):
+    """An :class:`EdgeWave` whose figures came from a batch: its record (``t``, ``v``) is
+    made from the unit response when first read, as :func:`simulate_edge` makes it (a
+    ranking reads only the figures of most edges)."""
+
+    def __init__(self, edge: str, unit: tuple, v_from: float, v_to: float, t_edge: float,
+                 overshoot: float, undershoot: float, settled: bool, key: tuple):
+        for name, value in (("edge", edge), ("v_from", v_from), ("v_to", v_to),
+                            ("t_edge", t_edge), ("overshoot", overshoot),
+                            ("undershoot", undershoot), ("settled", settled),
+                            ("key", key), ("_unit", unit)):
+            object.__setattr__(self, name, value)
+
+    @functools.cached_property
+    def t(self) -> np.ndarray:
+        return self._unit[0].copy()
+
+    @functools.cached_property
+    def v(self) -> np.ndarray:
+        return self.v_from + (self.v_to - self.v_from) * self._unit[1]
+
+
+def _figures(t: np.ndarray, v: np.ndarray, v_from: float, v_to: float) -> tuple:
+    """Edge time, overshoot and undershoot of one edge record. [s, V, V]"""
     hi, lo = max(v_from, v_to), min(v_from, v_to)
-    over = float(wf.overshoot(v, hi))
-    under = float(wf.undershoot(v, lo))
-    return EdgeWave(edge, t.copy(), v, v_from, v_to, t_edge, over, under, bool(settled))
+    return (float(wf.edge_time(t, v, v_to, v_initial=v_from)), float(wf.overshoot(v, hi)),
+            float(wf.undershoot(v, lo)))
+
+
+def figures_key(unit_key: tuple, v_from: float, v_to: float) -> tuple:
+    """The memo key of an edge's ``(t_edge, overshoot, undershoot)``: its unit
+    response's key and its levels (the record is ``v_from + (v_to - v_from) * unit``)."""
+    return ("pushline.edge_figures", unit_key, v_from, v_to)
+
+
+def crossing_key(unit_key: tuple, v_from: float, v_to: float, edge: str,
+                 level: float) -> tuple:
+    """The memo key of :meth:`EdgeWave.crossing` of an edge from :func:`simulate_edge`."""
+    return ("pushline.crossing", unit_key, v_from, v_to, edge, level)
+
+
+def recrossings_key(unit_key: tuple, v_from: float, v_to: float, edge: str, v_il: float,
+                    v_ih: float) -> tuple:
+    """The memo key of :meth:`EdgeWave.recrossings` of an edge from :func:`simulate_edge`."""
+    return ("pushline.recrossings", unit_key, v_from, v_to, edge, v_il, v_ih)
 
 
 def unit_edge_key(stretches: Sequence[Stretch], r_source: float, t_ramp: float,

@@ -2,6 +2,9 @@
 undershoot and threshold re-crossings.
 
 Waveform arrays hold time on their last axis; any leading axes are a batch of cases.
+A batch of records of different lengths can share one time axis padded to the longest:
+``n_valid`` gives each record's own sample count, and the samples after it are left out
+(the figures of a row are then those of its own record alone, to the last bit).
 All quantities are SI.
 """
 
@@ -70,8 +73,16 @@ def _time_axis(t, v) -> tuple[np.ndarray, np.ndarray]:
     return t, v
 
 
-def _first_upward(t: np.ndarray, u: np.ndarray, level, start=None) -> tuple:
-    """First upward crossing of ``level`` by ``u`` along the last axis, at or after ``start``.
+def _valid(u: np.ndarray, n_valid) -> np.ndarray | None:
+    """Which samples belong to each row's own record (None: all of them)."""
+    if n_valid is None:
+        return None
+    return np.arange(u.shape[-1]) < np.asarray(n_valid)[..., None]
+
+
+def _first_upward(t: np.ndarray, u: np.ndarray, level, start=None, valid=None) -> tuple:
+    """First upward crossing of ``level`` by ``u`` along the last axis, at or after ``start``
+    (and within ``valid``, a mask of the samples that count).
 
     Returns the interpolated time (NaN where there is none) and the index of the first
     sample at or above the level (0 where there is none).
@@ -80,6 +91,8 @@ def _first_upward(t: np.ndarray, u: np.ndarray, level, start=None) -> tuple:
     reached = u >= level
     if start is not None:
         reached &= np.arange(u.shape[-1]) >= start[..., None]
+    if valid is not None:
+        reached &= valid
     found = reached.any(axis=-1)
     k = np.argmax(reached, axis=-1)
     km1 = np.maximum(k - 1, 0)
@@ -95,7 +108,7 @@ def _first_upward(t: np.ndarray, u: np.ndarray, level, start=None) -> tuple:
     return np.where(found, tc, np.nan), k, found
 
 
-def edge_time(t, v, v_final, lo=0.1, hi=0.9, *, v_initial=0.0):
+def edge_time(t, v, v_final, lo=0.1, hi=0.9, *, v_initial=0.0, n_valid=None):
     """Edge time between two fractions of the swing (10-90 % by default).
 
     Parameters
@@ -112,6 +125,9 @@ def edge_time(t, v, v_final, lo=0.1, hi=0.9, *, v_initial=0.0):
         End level as a fraction of the swing; 0.9 by default. [1]
     v_initial : float or array_like, optional
         Level the edge starts from; 0 V by default. [V]
+    n_valid : int or array_like, optional
+        Samples of each record, when records of different lengths share ``t`` (see
+        the module notes); all by default. [1]
 
     Returns
     -------
@@ -142,13 +158,15 @@ def edge_time(t, v, v_final, lo=0.1, hi=0.9, *, v_initial=0.0):
         raise InputError(M.EDGE_LEVELS_OUT_OF_ORDER, field="lo, hi", value=(lo, hi),
                          expected="0 <= lo < hi <= 1")
     u = (v - v_initial[..., None]) / swing[..., None]
-    t_lo, k_lo, _ = _first_upward(t, u, lo)
-    t_hi, _, _ = _first_upward(t, u, np.broadcast_to(hi, k_lo.shape), start=k_lo)
+    valid = _valid(u, n_valid)
+    t_lo, k_lo, _ = _first_upward(t, u, lo, valid=valid)
+    t_hi, _, _ = _first_upward(t, u, np.broadcast_to(hi, k_lo.shape), start=k_lo,
+                               valid=valid)
     out = t_hi - t_lo
     return out[()] if np.ndim(out) == 0 else out
 
 
-def threshold_delay(t, v, v_th, *, edge="rise"):
+def threshold_delay(t, v, v_th, *, edge="rise", n_valid=None):
     """Time of the first crossing of a threshold.
 
     Parameters
@@ -161,6 +179,8 @@ def threshold_delay(t, v, v_th, *, edge="rise"):
         Threshold (VIH for a rising edge, VIL for a falling one). [V]
     edge : {"rise", "fall"}, optional
         Direction of the crossing sought. [1]
+    n_valid : int or array_like, optional
+        Samples of each record (see the module notes); all by default. [1]
 
     Returns
     -------
@@ -176,11 +196,13 @@ def threshold_delay(t, v, v_th, *, edge="rise"):
     """
     t, v = _time_axis(t, v)
     sign = _edge_sign(edge)
-    tc, _, _ = _first_upward(t, sign * v, sign * np.asarray(v_th, dtype=float))
+    u = sign * v
+    tc, _, _ = _first_upward(t, u, sign * np.asarray(v_th, dtype=float),
+                             valid=_valid(u, n_valid))
     return tc[()] if np.ndim(tc) == 0 else tc
 
 
-def overshoot(v, v_high):
+def overshoot(v, v_high, *, n_valid=None):
     """Overshoot above the final high level.
 
     Parameters
@@ -189,6 +211,8 @@ def overshoot(v, v_high):
         Samples of a rising edge, time on the last axis. [V]
     v_high : float or array_like
         Final high level (the driver's supply). [V]
+    n_valid : int or array_like, optional
+        Samples of each record (see the module notes); all by default. [1]
 
     Returns
     -------
@@ -203,12 +227,13 @@ def overshoot(v, v_high):
     """
     v = np.asarray(v, dtype=float)
     high = np.asarray(v_high, dtype=float)
-    excess = v.max(axis=-1) - high
+    valid = _valid(v, n_valid)
+    excess = (v if valid is None else np.where(valid, v, -np.inf)).max(axis=-1) - high
     out = np.where(excess > _SETTLED_RTOL * np.abs(high), excess, 0.0)
     return out[()] if np.ndim(out) == 0 else out
 
 
-def undershoot(v, v_low=0.0):
+def undershoot(v, v_low=0.0, *, n_valid=None):
     """Undershoot below the final low level of a falling edge.
 
     Parameters
@@ -217,6 +242,8 @@ def undershoot(v, v_low=0.0):
         Samples of a falling edge, time on the last axis. [V]
     v_low : float or array_like, optional
         Final low level; 0 V (ground) by default. [V]
+    n_valid : int or array_like, optional
+        Samples of each record (see the module notes); all by default. [1]
 
     Returns
     -------
@@ -234,13 +261,19 @@ def undershoot(v, v_low=0.0):
     """
     v = np.asarray(v, dtype=float)
     low = np.asarray(v_low, dtype=float)
-    dip = low - v.min(axis=-1)
-    scale = np.maximum(np.abs(v).max(axis=-1), np.abs(low))
+    valid = _valid(v, n_valid)
+    if valid is None:
+        v_min, v_abs = v.min(axis=-1), np.abs(v).max(axis=-1)
+    else:
+        v_min = np.where(valid, v, np.inf).min(axis=-1)
+        v_abs = np.where(valid, np.abs(v), 0.0).max(axis=-1)
+    dip = low - v_min
+    scale = np.maximum(v_abs, np.abs(low))
     out = np.where(dip > _SETTLED_RTOL * scale, dip, 0.0)
     return out[()] if np.ndim(out) == 0 else out
 
 
-def recrossings(t, v, v_il, v_ih, *, edge="rise"):
+def recrossings(t, v, v_il, v_ih, *, edge="rise", n_valid=None):
     """Count threshold re-crossings caused by ringing after an edge.
 
     Parameters
@@ -255,6 +288,8 @@ def recrossings(t, v, v_il, v_ih, *, edge="rise"):
         Receiver high-level input threshold VIH(min). [V]
     edge : {"rise", "fall"}, optional
         Direction of the edge. [1]
+    n_valid : int or array_like, optional
+        Samples of each record (see the module notes); all by default. [1]
 
     Returns
     -------
@@ -290,9 +325,12 @@ def recrossings(t, v, v_il, v_ih, *, edge="rise"):
     th_opposite = np.where(sign > 0, v_il, -v_ih)[..., None]
     th_entry, th_opposite = np.broadcast_arrays(th_entry, th_opposite)
 
-    t_first, k_first, found = _first_upward(t, u, th_entry[..., 0])
+    valid = _valid(u, n_valid)
+    t_first, k_first, found = _first_upward(t, u, th_entry[..., 0], valid=valid)
     after = np.arange(u.shape[-1])[1:] > k_first[..., None]
     after &= found[..., None]
+    if valid is not None:
+        after &= valid[..., 1:]  # the pair ends within the record
     above_e = u >= th_entry
     above_o = u >= th_opposite
     fell_e = above_e[..., :-1] & ~above_e[..., 1:] & after
@@ -312,7 +350,13 @@ def recrossings(t, v, v_il, v_ih, *, edge="rise"):
     frac = np.where(has_rise_again, (th_entry[..., 0] - u0) / du, 0.0)
     t_again = t[last] + frac * (t[i1] - t[last])
     t_settled = np.where(has_rise_again, t_again, t_first)
-    t_settled = np.where(found & above_e[..., -1], t_settled, np.nan)
+    if valid is None:
+        ends_above = above_e[..., -1]
+    else:
+        last_sample = np.broadcast_to(np.asarray(n_valid)[..., None] - 1,
+                                      above_e.shape[:-1] + (1,))
+        ends_above = np.take_along_axis(above_e, last_sample, axis=-1)[..., 0]
+    t_settled = np.where(found & ends_above, t_settled, np.nan)
 
     def _out(x):
         return x[()] if np.ndim(x) == 0 else x
