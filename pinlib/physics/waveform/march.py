@@ -304,40 +304,51 @@ def march(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
 
 
 def _march_single(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
-    """:func:`march` for one case: each run one matrix product per node."""
-    n_nodes, n_ports, src = net.a.shape[0], net.port_node.size, net.source
+    """:func:`march` for one case: each run one matrix product per node.
+
+    Every run is a whole block: the record is solved past its end to a whole number of
+    runs (the source held), and cut.
+    """
+    n_nodes, src, port_node = net.a.shape[0], net.source, net.port_node
     block = _run_length(net, n_t)
     mat = _run_matrix(net, block)
+    runs = -(-(n_t - 1) // block)
+    n_all = 1 + runs * block
     pad = int(net.port_delay.max()) + 1
-    launched = np.zeros((n_ports, pad + n_t))
+    size = pad + n_all
+    launched = np.zeros((port_node.size, size))
+    flat_launched = launched.reshape(-1)
     reach = pad - 1 - net.port_delay[:, None] + np.arange(block + 1)[None, :]
-    rows = np.broadcast_to(net.port_partner[:, None], reach.shape)
+    flat = net.port_partner[:, None] * size + reach                      # (P, block + 1)
     frac = net.port_frac[:, None] if np.any(net.port_frac > 0.0) else None
     weight = net.incidence * (2.0 * net.port_g[:, 0])[None, :]           # (N, P)
-    src_cur = net.g_source[0] * v_src[:, 0]
+    src_cur = np.empty(n_all)
+    src_cur[:n_t] = net.g_source[0] * v_src[:, 0]
+    src_cur[n_t:] = src_cur[n_t - 1]
+    v_forced = np.empty(n_all)
+    v_forced[:n_t] = v_src[:, 0]
+    v_forced[n_t:] = v_forced[n_t - 1]
     forced = bool(net.forced[0])
-    volts = np.empty((n_nodes, n_t))
+    volts = np.empty((n_nodes, n_all))
     state = np.zeros((n_nodes, block + 2))                               # v, i, I[...]
+    cur = state[:, 2:]
     state[src, 1] = src_cur[0]
     if forced:
-        state[src, 0] = v_src[0, 0]
+        state[src, 0] = v_forced[0]
     volts[:, 0] = state[:, 0]
-    n = 1
-    while n < n_t:
-        m = min(block, n_t - n)
-        got = launched[rows[:, :m + 1], reach[:, :m + 1] + n]            # (P, m + 1)
+    column = state[:, :, None]
+    for n in range(1, n_all, block):
+        got = flat_launched.take(flat + n)                               # (P, block + 1)
         inc = got[:, 1:]
         if frac is not None:
             inc = inc + frac * (got[:, :-1] - inc)
-        cur = state[:, 2:m + 2]
         np.matmul(weight, inc, out=cur)
-        cur[src] += src_cur[n:n + m]
-        w = np.matmul(mat[:, :m, :m + 2], state[:, :m + 2, None])[:, :, 0]
+        cur[src] += src_cur[n:n + block]
+        w = np.matmul(mat, column)[:, :, 0]
         if forced:
-            w[src] = v_src[n:n + m, 0]
-        volts[:, n:n + m] = w
-        launched[:, pad + n:pad + n + m] = w[net.port_node] - inc
+            w[src] = v_forced[n:n + block]
+        volts[:, n:n + block] = w
+        np.subtract(w.take(port_node, axis=0), inc, out=launched[:, pad + n:pad + n + block])
         state[:, 0] = w[:, -1]
         state[:, 1] = cur[:, -1]
-        n += m
-    return volts[:, :, None]
+    return volts[:, :n_t, None]
