@@ -245,10 +245,13 @@ def _run_matrix(net: Network, block: int) -> np.ndarray:
 def march(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
     """Every node's voltage at every step, ``(nodes, n_t, B)``; ``v_src`` is ``(n_t, B)``."""
     n_nodes, n_b = net.a.shape
-    if n_b == 1 and net.port_node.size and _run_length(net, n_t) <= _SINGLE_BLOCK:
-        return _march_single(net, v_src, n_t)
-    n_ports, src = net.port_node.size, net.source
     block = _run_length(net, n_t)
+    n_ports = net.port_node.size
+    # one case on short runs, its launched waves kept whole (else the ring below)
+    if (n_b == 1 and n_ports and block <= _SINGLE_BLOCK
+            and n_ports * (net.port_delay.max() + n_t + block) <= _MAX_BUFFER_ELEMENTS):
+        return _march_single(net, v_src, n_t)
+    src = net.source
     scan = _Scan(net.a, block)
     c_now, c_prev = net.c_now[:, None, :], net.c_prev[:, None, :]
     two_g = 2.0 * net.port_g[:, None, :]
