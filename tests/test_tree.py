@@ -127,6 +127,21 @@ def test_batch_matches_single_cases():
             assert np.allclose(batch.v[i, j], one.v, rtol=0, atol=1e-13)
 
 
+@pytest.mark.parametrize("r_source", [0.0, 30.0])
+def test_one_case_equals_the_batched_march(r_source):
+    # derived: a single case runs through one matrix product per node and run, a batch
+    # through the doubling sum; the same equations, so equal to rounding.  Delays off
+    # the grid (interpolated) and a stub of 3.4 steps (short runs) included.
+    t = grid(12e-9)
+    sections = [(0, 1, 50.0, 0.613e-9), (1, 2, 65.0, 0.017e-9), (1, 3, 45.0, 1.27e-9),
+                (3, 4, 50.0, 0.33e-9)]
+    caps = [6e-12, 0.0, 4e-12, 2e-12, 4e-12]
+    one = wf.tree_response(t, VDD, T_RAMP, r_source, sections, caps, source=3)
+    two = wf.tree_response(t, VDD, T_RAMP, np.full(2, r_source), sections, caps, source=3)
+    assert np.allclose(two.v[0], one.v, rtol=0, atol=1e-13)
+    assert np.allclose(two.v[1], one.v, rtol=0, atol=1e-13)
+
+
 def test_a_single_node():
     # derived: no line, the source behind r_source into the node's capacitance (lumped)
     t = grid(10e-9)
