@@ -54,18 +54,15 @@ from pinlib.engines import pushpull as pp
 from pinlib.engines.opendrain.rules import supply_margin
 from pinlib.engines.ppvariant import number_or_nan as _num
 from pinlib.engines.pushline import Flight
-from pinlib.engines.tablegrid import interpolate, rough_cells, stencil
+from pinlib.engines.tablegrid import interpolate, rough_spans, stencil
 from pinlib.model.design import Bus, Design
 from pinlib.model.result import STATUS_CODES, min_margin, status_codes
 
 __all__ = ["MARGIN_TOL", "VERIFY", "Axis", "LineTable", "Refusal", "axes_of", "tabulate"]
 
-#: Largest difference between an interpolated and an engine margin the table accepts
-#: (margins are fractions of their limit: 0.2 % of the limit).  The engine's own
-#: figures move by about 0.1 % of their limit from board to board where its time step
-#: moves with the lengths (an overshoot read from the samples of a routed line's record,
-#: tests/data/spi-route.toml), so a table cannot be held much closer than that; the
-#: boards within three times the error found of failing go to the engine.
+#: Largest difference between an interpolated and an engine margin the table accepts (a
+#: fraction of the limit): the engine's own overshoot on a route moves by about 0.1 % of
+#: its limit as its time step moves with the lengths (tests/data/spi-route.toml).
 MARGIN_TOL = 2e-3
 #: Boards drawn inside the box (fixed seed) at which the table is checked against the engine.
 VERIFY = 20
@@ -85,14 +82,12 @@ class Refusal:
 
 
 class _Refused(Exception):
-    """Raised inside the table's construction; :func:`tabulate` returns it as a
-    :class:`Refusal`."""
+    """Raised while a table is built; :func:`tabulate` returns it as a :class:`Refusal`."""
 #: More engine evaluations than this and the table is not built (nor refined further).
 MAX_NODES = 400
-#: Bisections of a rough cell at most, and the largest miss of a one-sided cubic counted
-#: as smooth (a margin, a fraction of its limit: see :mod:`pinlib.engines.tablegrid`).
-REFINE = 8
-ROUGH_TOL = 2e-3
+#: Bisections of a rough cell at most; the largest miss of a one-sided cubic counted as
+#: smooth (a margin, a fraction of its limit: :mod:`pinlib.engines.tablegrid`).
+REFINE, ROUGH_TOL = 8, 2e-3
 
 
 @dataclass(frozen=True)
@@ -400,12 +395,9 @@ def _tabulate(bus, design, axes, resistors, grids, shape, bar) -> LineTable:
     table = _assemble(bus, design, axes, resistors, grids, done, bar, {})
     for _ in range(REFINE):
         finer = _refined(table)
-        if finer is None:
+        if finer is None or math.prod(g.size for g in finer) > MAX_NODES:
             break
-        extra = int(np.prod([g.size for g in finer])) - int(np.prod([g.size for g in grids]))
-        if int(np.prod([g.size for g in finer])) > MAX_NODES:
-            break
-        bar.grow(extra)
+        bar.grow(math.prod(g.size for g in finer) - math.prod(g.size for g in grids))
         grids = finer
         table = _assemble(bus, design, axes, resistors, grids, done, bar, table._spans)
     table.evaluations = len(done)
@@ -413,8 +405,7 @@ def _tabulate(bus, design, axes, resistors, grids, shape, bar) -> LineTable:
 
 
 def _assemble(bus, design, axes, resistors, grids, done, bar, spans) -> LineTable:
-    """The table over ``grids`` (evaluating the nodes ``done`` lacks), with each line's
-    rough cells."""
+    """The table over ``grids`` (the nodes ``done`` lacks evaluated), its rough cells."""
     shape = tuple(g.size for g in grids)
     names: list | None = None
     order: list | None = None
@@ -459,26 +450,16 @@ def _assemble(bus, design, axes, resistors, grids, done, bar, spans) -> LineTabl
 
 def _rough(table: LineTable, before: dict) -> None:
     """Each line's rough cells along each axis, where one of its interpolated margins is
-    not smooth (:func:`pinlib.engines.tablegrid.rough_cells`, :data:`ROUGH_TOL`): those
-    rough now are declined (and bisected while wider than the finest); a span rough on a
-    coarser grid none of whose cells is rough now (a bend that a finer grid follows) is
-    kept out of every other point's stencil.  Sets ``_rough`` and ``_spans``."""
+    not smooth (:func:`pinlib.engines.tablegrid.rough_spans`, :data:`ROUGH_TOL`).  Sets
+    ``_rough`` and ``_spans``."""
     for sig, (_, values) in table._lines.items():
         cols = [p[2][0] for p in table._checks if p[0] == "line" and p[1] == sig]
-        rough, spans = [], []
-        for a, g in enumerate(table._grids):
-            along = np.moveaxis(values[..., cols], a, -1).reshape(-1, g.size) if cols \
-                else np.zeros((0, g.size))
-            now = np.flatnonzero(rough_cells(g, along, ROUGH_TOL))
-            span = [(float(g[c]), float(g[c + 1])) for c in now]
-            span += [(lo, hi) for lo, hi in before.get(sig, [[]] * len(table._grids))[a]
-                     if not any(lo <= x < hi for x, _ in span)]
-            avoided = [c for c in range(g.size - 1)
-                       if any(lo <= g[c] and g[c + 1] <= hi for lo, hi in span)]
-            rough.append((np.array(avoided, dtype=int), now))
-            spans.append(span)
-        table._rough[sig] = rough
-        table._spans[sig] = spans
+        got = [rough_spans(g, np.moveaxis(values[..., cols], a, -1).reshape(-1, g.size)
+                           if cols else np.zeros((0, g.size)), ROUGH_TOL,
+                           before.get(sig, [[]] * len(table._grids))[a])
+               for a, g in enumerate(table._grids)]
+        table._rough[sig] = [(avoided, now) for avoided, now, _ in got]
+        table._spans[sig] = [span for _, _, span in got]
 
 
 def _refined(table: LineTable) -> list | None:

@@ -28,11 +28,29 @@ import itertools
 
 import numpy as np
 
-__all__ = ["STENCIL", "rough_cells", "stencil", "interpolate"]
+__all__ = ["STENCIL", "rough_cells", "rough_spans", "stencil", "interpolate"]
 
 #: Nodes in each axis's interpolation stencil: a cubic through 4 nodes where the axis has
 #: them (error of order h^4 on a smooth result), else through all of them.
 STENCIL = 4
+
+
+def rough_spans(g: np.ndarray, values: np.ndarray, tol: float,
+                before: list) -> tuple[np.ndarray, np.ndarray, list]:
+    """The rough cells of an axis that a caller bisects, kept across its bisections.
+
+    Returns the cells no other point's stencil may span, the cells rough now (the
+    caller bisects them while wider than it allows, then declines their points), and
+    the spans ``(lo, hi)`` to pass as ``before`` on the next, finer grid: a span rough
+    on a coarser grid none of whose cells is rough now (a bend the finer grid follows
+    within ``tol``) stays out of other points' stencils.
+    """
+    now = np.flatnonzero(rough_cells(g, values, tol))
+    span = [(float(g[c]), float(g[c + 1])) for c in now]
+    span += [(lo, hi) for lo, hi in before if not any(lo <= x < hi for x, _ in span)]
+    avoided = [c for c in range(g.size - 1)
+               if any(lo <= g[c] and g[c + 1] <= hi for lo, hi in span)]
+    return np.array(avoided, dtype=int), now, span
 
 
 def _lagrange(nodes: np.ndarray, x: np.ndarray) -> np.ndarray:
