@@ -162,3 +162,32 @@ def test_fast_corner_on_a_routed_line_sets_overshoot_at_every_receiver(lib):
                 slow.cases["U1"].wave_at(ref, edge_name).t_edge, rel=1e-12)
     f_both, f_fast = both.result.figures, fast.result.figures
     assert f_both["overshoot"].value == pytest.approx(f_fast["overshoot"].value, rel=1e-12)
+
+
+def _auto_line_of(lib, part, length=0.20):
+    """As :func:`line_of`, with ``series_resistor = "auto"``."""
+    ctrl = Device("U1", part, lib.parts[part], "controller", None)
+    rx = Device("U2", "pp-periph", lib.parts["pp-periph"], "peripheral", None)
+    d = Endpoint(ctrl, "sclk", ctrl.part.pins["sclk"], VDD)
+    r = Endpoint(rx, "sclk", rx.part.pins["sclk"], VDD)
+    line = Line("sclk", (Section(length, None, 1e-10, 5e-9),), "auto", 0.0)
+    return analyse_line("sclk", line, [d], [d, r], [r], clock=20e6, clock_line=True)
+
+
+def test_the_fast_corner_judges_electrical_length_and_sizes_auto_series(lib):
+    slow, fast, both = (line_of(lib, p) for p in ("slow-only", "fast-only", "both"))
+    # the part with both corners: the line is long against the quicker of its edges
+    # (here the fast corner's, the same ramps behind 12 Ω instead of 40 Ω), so its
+    # delay-to-edge ratio is the fast part's (derived: same edge into the same pins)
+    assert both.edge_alone == pytest.approx(fast.edge_alone, rel=1e-12)
+    assert both.ratio == pytest.approx(fast.ratio, rel=1e-12) and both.ratio > slow.ratio
+    a_slow, a_fast, a_both = (_auto_line_of(lib, p)
+                              for p in ("slow-only", "fast-only", "both"))
+    # derived: Z0 = td/C = 5 ns/m / 100 pF/m = 50 Ω; "auto" matches the corner that
+    # rings, 50 - 12 = 38 Ω -> E24 39 Ω (the slow corner alone: 50 - 40 = 10 Ω)
+    assert a_slow.rs == pytest.approx(10.0) and a_fast.rs == pytest.approx(39.0)
+    assert a_both.rs == pytest.approx(39.0)
+    # ...while its edge times stay the slow corner's, through that resistor: slower
+    # than the fast part's through the same 39 Ω
+    f_both, f_fast = a_both.result.figures, a_fast.result.figures
+    assert f_both["edge_rise_time"].value > f_fast["edge_rise_time"].value

@@ -135,3 +135,72 @@ def test_edge_curves_at_every_datasheet_level_keep_their_colours(tmp_path):
                                 operating=(*e.operating, e.operating_label))
     scale = chart.to_dict()["layer"][0]["encoding"]["color"]["scale"]
     assert scale["domain"] == list(e.curves)
+
+
+def _gpio_with_fast_corner(tmp_path, extra: str = ""):
+    """A GPIO line driven by a part with a slow (40 Ω) and a fast (12 Ω) corner
+    (invented), into a 50 Ω line long enough to ring."""
+    data = ROOT / "tests" / "data" / "pushpull"
+    parts = tmp_path / "parts"
+    parts.mkdir(exist_ok=True)
+    body = (data / "pp-ctrl.toml").read_text(encoding="utf-8")
+    body = body.replace('id = "pp-ctrl"', 'id = "pp-ctrl-fast"')
+    head, reset = body.split("[pins.reset]")
+    reset = reset.replace('r_out = "20 Ω"', 'r_out = "40 Ω"\nfast = { r_out = "12 Ω" }', 1)
+    (parts / "pp-ctrl-fast.toml").write_text(head + "[pins.reset]" + reset,
+                                             encoding="utf-8")
+    design = tmp_path / "fast.toml"
+    design.write_text(f'''format = "pinlib.design/1"
+title = "GPIO from a part with a fast corner (invented)"
+library = ["{data.as_posix()}", "{parts.as_posix()}"]
+
+[[bus]]
+id = "reset"
+protocol = "gpio"
+supply = "3.3 V"
+{extra}
+devices = [
+  {{ ref = "U1", part = "pp-ctrl-fast", role = "controller", pin = "reset" }},
+  {{ ref = "U2", part = "pp-periph", pin = "reset" }},
+]
+lines.reset.length = "20 cm"
+lines.reset.capacitance = "1 pF/cm"
+lines.reset.delay = "50 ps/cm"
+''', encoding="utf-8")
+    return load_design(design)
+
+
+def test_waveforms_draw_the_corner_the_overshoot_check_uses(tmp_path):
+    from pinlib.engines.dispatch import evaluate_bus
+
+    design = _gpio_with_fast_corner(tmp_path)
+    bus = design.bus("reset")
+    w = plotdata.waveform_data(bus, design, "reset")
+    assert w.si_corner == "fast" and not w.checks_at_worst
+    fast, slow = "rise, no series R (fast corner)", "rise, no series R (slow corner)"
+    assert {fast, slow} <= set(w.traces)
+    assert "fall, no series R (fast corner)" in w.traces
+    # the figure beside the chart is the fast corner's overshoot: the trace drawn for it
+    # measures the same (the engine's own waveform, so to rounding); the slow corner's
+    # overshoot is lower (derived: 12 Ω against 40 Ω into 50 Ω launches a larger step)
+    result = evaluate_bus(bus, design)
+    check = next(c for ln in result.lines for c in ln.checks if c.id == "overshoot")
+    assert w.overshoot[fast] == pytest.approx(check.value, rel=1e-12)
+    assert w.overshoot[slow] < w.overshoot[fast]
+    # the drawn trace reaches the measured peak (the grid keeps each trace's peak sample)
+    assert float(np.max(w.traces[fast])) == pytest.approx(w.vdd + w.overshoot[fast],
+                                                          rel=1e-9)
+    assert any("fast corner of U1" in n and "slow corner" in n for n in w.notes)
+
+
+def test_waveform_notes_say_the_checks_are_at_the_worst_corner(tmp_path, demo):
+    design = _gpio_with_fast_corner(tmp_path, 'supply_tolerance = "5 %"')
+    w = plotdata.waveform_data(design.bus("reset"), design, "reset")
+    assert w.checks_at_worst
+    assert any("nominal board" in n and "worst corner" in n and "supply" in n
+               for n in w.notes)
+    # a part with one corner draws it alone, named as before
+    flash = demo.bus("flash")
+    w = plotdata.waveform_data(flash, demo, "sclk")
+    assert w.si_corner == "slow"
+    assert not any("corner)" in name for name in w.traces)

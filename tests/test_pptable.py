@@ -19,7 +19,7 @@ from hypothesis import given
 from hypothesis import strategies as st
 
 from pinlib.engines import ppbatch as ppb
-from pinlib.engines import pptable
+from pinlib.engines import pptable, tablegrid
 from pinlib.engines.pushpull import evaluate_bus
 from pinlib.model.design import load_design
 from pinlib.model.result import (
@@ -145,7 +145,7 @@ def test_multilinear_interpolation_is_exact_on_a_bilinear_function():
     table = (1 + 2 * x - 3 * y + 0.5 * x * y)[..., None]
     rng = np.random.default_rng(0)
     pts = np.stack([rng.uniform(0.9, 1.1, 200), rng.uniform(0.95, 1.05, 200)], axis=1)
-    got = pptable._interpolate([gx, gy], table, pts)[:, 0]
+    got = tablegrid.interpolate([gx, gy], table, pts)[0][:, 0]
     want = 1 + 2 * pts[:, 0] - 3 * pts[:, 1] + 0.5 * pts[:, 0] * pts[:, 1]
     np.testing.assert_allclose(got, want, rtol=1e-12)
 
@@ -244,8 +244,85 @@ def test_a_quantity_equal_at_every_node_is_returned_as_it_is():
     table = np.stack([np.full(7, np.inf), np.full(7, np.nan), np.full(7, 2.5),
                       np.linspace(0.0, 1.0, 7)], axis=1)
     pts = np.array([[0.93], [1.0], [1.07]])
-    got = pptable._interpolate(grids, table, pts)
+    got = tablegrid.interpolate(grids, table, pts)[0]
     assert np.all(np.isposinf(got[:, 0])) and np.all(np.isnan(got[:, 1]))
     assert np.all(got[:, 2] == 2.5)
     # the linear column is reproduced exactly (common practice: a cubic holds a line)
     np.testing.assert_allclose(got[:, 3], (pts[:, 0] - 0.9) / 0.2, rtol=1e-12)
+
+
+def test_rough_cells_find_a_jump_and_a_bend_and_leave_a_smooth_curve():
+    # a cubic is extrapolated exactly from either side (common practice, no source: a
+    # polynomial of degree 3 through 4 nodes is itself); a step and a kink are not
+    g = np.linspace(0.9, 1.1, 9)
+    smooth = 1 + 3 * g - 2 * g ** 2 + 0.5 * g ** 3
+    step = smooth + 0.08 * (g > 0.99)          # a jump inside the cell (0.975, 1.0)
+    kink = np.abs(g - 1.04) * 0.9              # a bend inside the cell (1.025, 1.05)
+    assert not tablegrid.rough_cells(g, smooth[None, :], 1e-9).any()
+    assert list(np.flatnonzero(tablegrid.rough_cells(g, step[None, :], 5e-3))) == [3]
+    assert list(np.flatnonzero(tablegrid.rough_cells(g, kink[None, :], 5e-3))) == [5]
+
+
+def test_stencils_keep_to_one_side_of_a_rough_cell_on_an_uneven_grid():
+    # derived: a cubic through 4 nodes of one smooth piece holds that piece's cubic
+    # exactly, wherever the nodes are; the piecewise function jumps inside cell 3
+    g = np.array([0.9, 0.93, 0.96, 0.97, 0.975, 1.0, 1.05, 1.1])
+    def f(x):
+        return np.where(x > 0.972, 2 + x ** 3, 1 - x ** 2)
+    table = f(g)[:, None]
+    x = np.array([0.91, 0.95, 0.965, 0.973, 0.98, 1.02, 1.09])
+    got, declined = tablegrid.interpolate([g], table, x[:, None], [(np.array([3]), np.array([3]))])
+    assert list(declined) == [False, False, False, True, False, False, False]
+    ok = ~declined
+    np.testing.assert_allclose(got[ok, 0], f(x[ok]), rtol=1e-12)
+
+
+@pytest.fixture(scope="module")
+def routed(tmp_path_factory):
+    """tests/data/spi-route.toml (invented) with a supply, a length and a capacitance
+    tolerance: a receiver on a stub sees a stepped edge whose 10-90 % time jumps as the
+    lengths move a step's plateau across 90 %."""
+    text = (DATA / "spi-route.toml").read_text(encoding="utf-8").replace(
+        'supply = "3.3 V"\n', 'supply = "3.3 V"\nsupply_tolerance = "5 %"\n'
+        'length_tolerance = "10 %"\n', 1)
+    path = tmp_path_factory.mktemp("route") / "route-tol.toml"
+    path.write_text(text, encoding="utf-8")
+    design = load_design(path)
+    bus = design.buses[0]
+    n = 16
+    factors = _factors(bus, n, seed=11)
+    nominal = evaluate_bus(bus, design)
+    tables: dict = {}
+    # a run of many boards builds the table; these few are checked against the engine
+    ppb.prepare_table(bus, design, nominal, tables, 1.0, 1e-6, 20_000)
+    table = tables[bus.id]
+    if isinstance(table, pptable.LineTable):  # and one board inside sclk's jump cell
+        length = next(i for i, ax in enumerate(table.axes) if ax.kind == "length")
+        g = table._grids[length]
+        for c in table._rough["sclk"][length][1][:1]:
+            for key in factors:
+                if key[0] == "line-length":
+                    factors[key][0] = 0.5 * (g[c] + g[c + 1])
+    by_table = ppb.build(bus, design, factors, n, nominal=nominal, tables=tables)
+    by_engine = ppb.build(bus, design, factors, n, nominal=nominal)
+    return by_table, by_engine, tables[bus.id], factors, n
+
+
+def test_a_routed_line_is_tabulated_and_its_jumps_left_to_the_engine(routed):
+    by_table, by_engine, table, factors, n = routed
+    assert isinstance(table, pptable.LineTable), table
+    assert table.max_error <= pptable.MARGIN_TOL
+    # the jump of sclk's edge time at U2 is found, bisected to a narrow cell and declined
+    length = next(i for i, ax in enumerate(table.axes) if ax.kind == "length")
+    g = table._grids[length]
+    avoided, declined = table._rough["sclk"][length]
+    assert declined.size and all(g[c + 1] - g[c] < 0.2 / 6 / 16 for c in declined)
+    assert table.declined(factors, n)[0]
+    assert by_table.engine_boards < n
+    # every board: the same status as the engine's, margins within the table's tolerance
+    for a, b in zip(by_table.items, by_engine.items, strict=True):
+        np.testing.assert_array_equal(a.status, b.status)
+        if b.margin is not None:
+            ok = np.isfinite(b.margin)
+            np.testing.assert_allclose(a.margin[ok], b.margin[ok], rtol=0,
+                                       atol=pptable.MARGIN_TOL)

@@ -62,6 +62,14 @@ class Progress:
         if self._callback is not None:
             self._callback(self.done, self.total)
 
+    def grow(self, n: int) -> None:
+        """``n`` more units of work than first thought (a table refining its grid)."""
+        if self.total is not None:
+            self.total += int(n)
+            if self._bar is not None:
+                self._bar.total = self.total
+                self._bar.refresh()
+
     def close(self) -> None:
         if self._bar is not None:
             self._bar.close()

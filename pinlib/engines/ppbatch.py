@@ -150,6 +150,9 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
             margin[inside], value[inside] = got["margin"], got["value"]
             limit[inside], status[inside] = got["limit"], got["status"]
         todo = ~inside
+        # a line's factor in a cell its results jump or bend across: the engine's
+        todo[inside] |= grid.declined({k: np.asarray(f, dtype=float).reshape(n)[inside]
+                                       for k, f in factors.items()}, int(inside.sum()))
         # A board whose interpolated margin is within the table's error of failing goes
         # to the engine: its pass or fail must not rest on the interpolation.
         band = 3.0 * grid.max_error + 1e-12
@@ -222,5 +225,7 @@ def _table_note(bus: Bus, grid) -> str:
     return (f"bus {bus.id}: line results interpolated from {grid.evaluations} engine "
             f"evaluations over the tolerance box ({axes}); at {pptable.VERIFY} boards "
             f"drawn in the box they agree with the engine within {grid.max_error:.1e} "
-            "of margin (boards outside the box, or within three times that of failing: "
-            "evaluated by the engine)")
+            + ("of margin (boards outside the box, within three times that of failing, "
+               "or where a line's results jump: evaluated by the engine)" if grid.has_jumps()
+               else "of margin (boards outside the box, or within three times that of "
+               "failing: evaluated by the engine)"))

@@ -6,7 +6,10 @@ board checked by the engine (:func:`pinlib.engines.dispatch.evaluate_bus` on eac
 the ratio says how many boards the vectorized draw checks in the time the engine
 checks one.  The demo's SPI flash bus (with its supply and length tolerances) is sampled
 through the tables of :mod:`pinlib.engines.pptable` (engine evaluations over the tolerance
-box, verified against the engine); the time includes building them.
+box, verified against the engine); the time includes building them.  So is the routed SPI
+bus of tests/data/spi-route.toml given tolerances (its table bisects the cells where a
+receiver's margin jumps, and leaves the boards in them to the engine), timed against
+the engine on one board: ``ratio`` is the run's time over one engine board's.
 """
 
 from __future__ import annotations
@@ -113,8 +116,44 @@ def run(repeats: int = 3, quick: bool = False) -> list[Result]:
                       target=f"> {TARGET:,}/s", passed=rate > TARGET,
                       extra=[f"{n_spi:,} boards; {table or 'no table: every board by the engine'}"
                              " (pinlib.engines.pptable), the table's cost included"]))
+    out.append(_routed(repeats, quick))
     out.append(_memory(N_MEMORY // 10 if quick else N_MEMORY))
     return out
+
+
+#: Boards of the routed SPI run: its table costs tens of engine evaluations at about
+#: 0.4 s each (a route's tree solves), so a run of this size shows what a table saves.
+N_ROUTE = 20_000
+ROUTE = Path(__file__).resolve().parents[1] / "data" / "spi-route.toml"
+
+
+def _routed(repeats: int, quick: bool) -> Result:
+    """tests/data/spi-route.toml (invented) with a 5 % supply and a 10 % length
+    tolerance: Monte Carlo through the table of its routed lines (cells where a
+    receiver's margin jumps left to the engine), against the engine on one board."""
+    text = ROUTE.read_text(encoding="utf-8").replace(
+        'supply = "3.3 V"\n', 'supply = "3.3 V"\nsupply_tolerance = "5 %"\n'
+        'length_tolerance = "10 %"\n', 1)
+    with tempfile.TemporaryDirectory(prefix="pinlib-bench-") as tmp:
+        path = Path(tmp) / "route.toml"
+        path.write_text(text, encoding="utf-8")
+        design = load_design(path)
+    bus = design.buses[0]
+    n = N_ROUTE // 10 if quick else N_ROUTE
+    from pinlib.engines.pushpull import evaluate_board
+
+    t_one = median_time(lambda: evaluate_board(bus, design), 3, warmup=1)
+    runs = []
+    t_mc = median_time(lambda: runs.append(monte_carlo(design, n, seed=1)),
+                       max(1, repeats // 3), warmup=0)
+    table = next((note.split(":", 1)[1].split(" over ")[0].strip()
+                  for note in runs[-1].notes if "interpolated from" in note), None)
+    rate = n / t_mc
+    return Result("Monte Carlo: routed SPI bus (spi-route)", t_mc, "engine, one board",
+                  t_one, t_mc / t_one, "engine boards' time", unit="s",
+                  extra=[f"{n:,} boards in {t_mc:.3g} s ({rate:,.0f} boards/s, "
+                         f"{n * t_one / t_mc:,.0f}x the engine board by board); "
+                         f"{table or 'no table: every board by the engine'}"])
 
 
 #: Boards of the memory benchmark, and its ceiling. [1], [MB]

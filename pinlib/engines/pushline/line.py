@@ -217,7 +217,9 @@ def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
 
 
 def _electrical_length(a: LineAnalysis, notes: list) -> None:
-    """Electrical length against the fastest edge into the pins alone."""
+    """Electrical length against the fastest edge into the pins alone: of either corner
+    of a push-pull driver whose part states a fast one (its edge makes the line long
+    sooner)."""
     alone = []
     # every pin's capacitance once; each driver's load is all of them but its own
     c_in = {id(p.device): p.c_in for p in a.loads}
@@ -228,6 +230,10 @@ def _electrical_length(a: LineAnalysis, notes: list) -> None:
         alone.append(_edge_alone(m.r_fall, m.t_ramp_fall, c_pins))
         if d.pin.drive != "open-drain":
             alone.append(_edge_alone(m.r_rise, m.t_ramp_rise, c_pins))
+            if m.fast is not None:
+                f = m.fast
+                alone += [_edge_alone(f.r_rise, f.t_ramp_rise, c_pins),
+                          _edge_alone(f.r_fall, f.t_ramp_fall, c_pins)]
     a.edge_alone = min(alone)
     a.long, a.ratio = line_model(a.stretches, a.edge_alone,
                                  td=a.delay if a.net is not None else None)

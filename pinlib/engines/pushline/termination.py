@@ -104,9 +104,14 @@ def _auto_series(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
 
 def auto_ideal(a: LineAnalysis) -> tuple[float, float | None]:
     """The driver resistance "auto" matches (the strongest push-pull driver's mean of
-    rise and fall; NaN with none) and ``Z0 - r_out`` (None when either is unknown). [Ω]"""
-    r_drv = min(0.5 * (a.models[d.ref].r_rise + a.models[d.ref].r_fall)
-                for d in a.drivers if d.pin.drive != "open-drain") \
+    rise and fall, at its fast corner where its part states one: the corner that rings;
+    NaN with none) and ``Z0 - r_out`` (None when either is unknown). [Ω]"""
+    def strongest(m):
+        m = m.fast if m.fast is not None else m
+        return 0.5 * (m.r_rise + m.r_fall)
+
+    r_drv = min(strongest(a.models[d.ref]) for d in a.drivers
+                if d.pin.drive != "open-drain") \
         if any(d.pin.drive != "open-drain" for d in a.drivers) else math.nan
     return r_drv, (a.z0 - r_drv if math.isfinite(a.z0) and math.isfinite(r_drv) else None)
 

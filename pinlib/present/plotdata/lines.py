@@ -96,7 +96,16 @@ class WaveformData:
         Peak above the high level of each rise and dip below the low level of each
         fall, by trace name, as the line engine measured them. [V]
     notes : list of str
-        What the data leaves out. [1]
+        What the data leaves out, and which corner and board the traces are. [1]
+    si_corner : str
+        The driver's corner the line's overshoot, undershoot and ringing checks use:
+        ``"fast"`` (its part states one: the traces of both corners are drawn, those of
+        the fast corner named ``"... (fast corner)"``, of the slow ``"... (slow
+        corner)"``) or ``"slow"`` (the one corner, drawn alone). [1]
+    checks_at_worst : bool
+        The bus's checks are at the worst corner of its tolerances (supply, lengths,
+        capacitances: :func:`pinlib.engines.pushpull.evaluate_bus`) while the traces
+        are the nominal board; a note says so. [1]
     """
 
     bus: str
@@ -111,6 +120,8 @@ class WaveformData:
     overshoot: dict
     undershoot: dict
     notes: list = field(default_factory=list)
+    si_corner: str = "slow"
+    checks_at_worst: bool = False
 
 
 # =========================================================================== push-pull
@@ -234,6 +245,36 @@ def _route_waves(la, ref: str, case, receiver: str | None, cases: dict) -> dict:
             for rx in la.receivers if rx.ref != ref for edge in ("rise", "fall")}
 
 
+def _fast_waves(la, ref: str, case, receiver: str | None, cases: dict) -> dict:
+    """The fast corner's traces, named like the slow ones plus ``" (fast corner)"``, for
+    the cases that have one (empty when the driver states no fast corner)."""
+    out = {}
+    for edge in ("rise", "fall"):
+        if la.net is None:
+            out.update({f"{edge}, {name} (fast corner)": c.si_wave(edge)
+                        for name, c in cases.items() if c.fast_rise is not None})
+        elif receiver is not None:
+            out.update({f"{edge}, {name} (fast corner)": c.si_wave_at(receiver, edge)
+                        for name, c in cases.items() if c.fast_points is not None})
+        elif case.fast_points is not None:
+            out.update({f"{edge} at {rx.ref} (fast corner)": case.si_wave_at(rx.ref, edge)
+                        for rx in la.receivers if rx.ref != ref})
+    return out
+
+
+def _board_note(bus: Bus) -> str | None:
+    """What the traces are against the checks, when the bus has tolerances: the engine's
+    checks are at their worst corner, the traces the nominal board."""
+    from pinlib.engines.ppvariant import parameter_specs
+
+    specs = parameter_specs(bus)
+    if not specs:
+        return None
+    what = ", ".join(dict.fromkeys(kind for _, kind, *_ in specs))
+    return (f"the traces are the nominal board; the bus's checks are at the worst corner "
+            f"of its tolerances ({what})")
+
+
 def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None = None,
                   analysis=None, points: int = _WAVE_POINTS,
                   receiver: str | None = None) -> WaveformData:
@@ -302,6 +343,15 @@ def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None =
     else:
         waves = {f"{edge}, {name}": c.wave(edge) for name, c in cases.items()
                  for edge in ("rise", "fall")}
+    fast = _fast_waves(la, ref, case, receiver, cases)
+    if fast:  # the checks' overshoot and ringing come from the fast corner: draw both
+        waves = {f"{n} (slow corner)": w for n, w in waves.items()} | fast
+        notes.append(f"overshoot, undershoot and ringing are checked on the fast corner of "
+                     f"{ref} (its part's pins.{case.driver.pin_name}.fast), edge times and "
+                     "timing on its slow corner")
+    board = _board_note(bus)
+    if board is not None:
+        notes.append(board)
     end = _window_end(list(waves.values()))
     grid = [np.linspace(0.0, end, max(int(points), 2))]
     for w in waves.values():
@@ -317,4 +367,4 @@ def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None =
     over = {n: float(w.overshoot) for n, w in waves.items() if w.edge == "rise"}
     under = {n: float(w.undershoot) for n, w in waves.items() if w.edge == "fall"}
     return WaveformData(bus.id, signal, ref, t, traces, v_il, v_ih, vdd, rx, over, under,
-                        notes)
+                        notes, "fast" if fast else "slow", board is not None)
