@@ -287,13 +287,7 @@ def edge_plan(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver,
     c_far = sum(p.c_in for p in loads) + extra_c
     if driver.pin.drive == "open-drain":
         rp = float(r_pullup)
-        v_hi = float(v_pullup)
-        leak = sum(float(p.pin.leakage.at()) for p in list(loads) + [driver]
-                   if p.pin.leakage is not None)
-        v_hi = max(v_hi - leak * rp, 0.0)
-        r_sink = model.r_fall + rs
-        v_lo = v_hi * r_sink / (r_sink + rp)
-        r_th = r_sink * rp / (r_sink + rp)
+        v_lo, v_hi, r_th = _open_drain_levels(driver, loads, model, rs, rp, v_pullup)
         distributed = needs_distributed(stretches, r_th, c_far, long)
         # The pull-up (>> Z0) charges the line as one capacitance.
         return EdgePlan((rp, 0.0, c_far, v_lo, v_hi), (r_th, model.t_ramp_fall, c_far, v_hi,
@@ -307,15 +301,34 @@ def edge_plan(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver,
                     distributed, c_far, 0.0, vdd)
 
 
+def _open_drain_levels(driver: Endpoint, loads: Sequence[Endpoint], model: drv.Driver,
+                       rs: float, rp: float, v_pullup) -> tuple[float, float, float]:
+    """An open-drain line's low and high levels and the Thevenin resistance of its sink
+    against the pull-up: ``(v_lo, v_hi, r_th)`` (the pins' leakage through the pull-up
+    lowers the high level). [V, V, Ω]"""
+    leak = sum(float(p.pin.leakage.at()) for p in list(loads) + [driver]
+               if p.pin.leakage is not None)
+    v_hi = max(float(v_pullup) - leak * rp, 0.0)
+    r_sink = model.r_fall + rs
+    return v_hi * r_sink / (r_sink + rp), v_hi, r_sink * rp / (r_sink + rp)
+
+
+def _fast_distributed(stretches: Sequence[Stretch], fast: drv.Driver, rs: float,
+                      c_far: float, long: bool) -> bool:
+    """Whether the fast corner's edges solve the line as distributed: it is electrically
+    long for them when it is for the slow corner or against the fast corner's own edge
+    into the pins."""
+    alone = min(float(drv.edge_time(fast.r_rise, fast.t_ramp_rise, c_far)),
+                float(drv.edge_time(fast.r_fall, fast.t_ramp_fall, c_far)))
+    long = long or line_model(stretches, alone)[0]
+    return needs_distributed(stretches, min(fast.r_rise, fast.r_fall) + rs, c_far, long)
+
+
 def _fast_edges(stretches: Sequence[Stretch], fast: drv.Driver, rs: float, c_far: float,
                 vdd: float, long: bool) -> tuple[EdgeWave, EdgeWave]:
     """Both edges of a driver's fast corner.  The line is electrically long for them when
     it is for the slow corner or against the fast corner's own edge into the pins."""
-    alone = min(float(drv.edge_time(fast.r_rise, fast.t_ramp_rise, c_far)),
-                float(drv.edge_time(fast.r_fall, fast.t_ramp_fall, c_far)))
-    long = long or line_model(stretches, alone)[0]
-    distributed = needs_distributed(stretches, min(fast.r_rise, fast.r_fall) + rs, c_far,
-                                    long)
+    distributed = _fast_distributed(stretches, fast, rs, c_far, long)
     rise = simulate_edge(stretches, fast.r_rise + rs, fast.t_ramp_rise, c_far, 0.0, vdd,
                          distributed=distributed, edge="rise")
     fall = simulate_edge(stretches, fast.r_fall + rs, fast.t_ramp_fall, c_far, vdd, 0.0,
@@ -339,13 +352,8 @@ def route_case(net: RouteNet, stretches: Sequence[Stretch], driver: Endpoint,
     src = net.node(driver.ref)
     c_test = _test_load(driver.device)
     if driver.pin.drive == "open-drain":
-        rp, v_hi = float(r_pullup), float(v_pullup)
-        leak = sum(float(p.pin.leakage.at()) for p in list(loads) + [driver]
-                   if p.pin.leakage is not None)
-        v_hi = max(v_hi - leak * rp, 0.0)
-        r_sink = model.r_fall + rs
-        v_lo = v_hi * r_sink / (r_sink + rp)
-        r_th = r_sink * rp / (r_sink + rp)
+        rp = float(r_pullup)
+        v_lo, v_hi, r_th = _open_drain_levels(driver, loads, model, rs, rp, v_pullup)
         distributed = needs_distributed(stretches, r_th, c_far, long)
         points = {"fall": tree_edges(net, src, r_th, model.t_ramp_fall, caps, v_hi, v_lo,
                                      distributed=distributed, edge="fall"),
@@ -367,10 +375,7 @@ def route_case(net: RouteNet, stretches: Sequence[Stretch], driver: Endpoint,
     fast = None
     if driver.pin.drive != "open-drain" and model.fast is not None:
         f = model.fast
-        f_long = long or line_model(stretches, min(
-            float(drv.edge_time(f.r_rise, f.t_ramp_rise, c_far)),
-            float(drv.edge_time(f.r_fall, f.t_ramp_fall, c_far))))[0]
-        f_dist = needs_distributed(stretches, min(f.r_rise, f.r_fall) + rs, c_far, f_long)
+        f_dist = _fast_distributed(stretches, f, rs, c_far, long)
         fast = {"rise": tree_edges(net, src, f.r_rise + rs, f.t_ramp_rise, caps, 0.0, v_hi,
                                    distributed=f_dist, edge="rise"),
                 "fall": tree_edges(net, src, f.r_fall + rs, f.t_ramp_fall, caps, v_hi, 0.0,
