@@ -39,6 +39,7 @@ __all__ = [
     "Threshold",
     "parse_threshold",
     "format_si",
+    "format_value",
     "unit_name",
 ]
 
@@ -340,6 +341,27 @@ def parse_threshold(text: object, *, field: str | None = None) -> Threshold:
     if not (math.isfinite(scale) and math.isfinite(offset)):
         raise UnitError(M.THRESHOLD_NOT_FINITE, field=field, value=text, expected=expected)
     return Threshold(scale, offset, body)
+
+
+def format_value(value, unit: str) -> str:
+    """A figure or check value as text: SI prefix and unit, ``yes``/``no``, text as is,
+    ``∞``/``−∞`` for an unbounded number, ``—`` for none (or NaN).  A value without a
+    unit (a ratio, a count) takes no SI prefix: "847 m" reads badly."""
+    if value is None:
+        return "—"
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, str):
+        return value
+    try:
+        x = float(value)
+    except (TypeError, ValueError):
+        return str(value)
+    if not math.isfinite(x):
+        return "∞" if x > 0 else ("−∞" if x < 0 else "—")
+    if not unit:
+        return f"{x:.4g}"
+    return format_si(x, unit)
 
 
 def format_si(value, unit: str, digits: int = 3) -> str:

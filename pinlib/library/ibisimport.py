@@ -19,7 +19,6 @@ from pinlib.core import messages as M
 from pinlib.core.errors import LibraryError
 from pinlib.core.protocols import PIN_FUNCTIONS, PROTOCOLS
 from pinlib.core.quantity import format_si
-from pinlib.core.tomlfile import atomic_write, file_lock
 from pinlib.library import loader
 from pinlib.library.ibis import IbisFile
 from pinlib.library.ibisderive import Derived, _model_of, derive_pin
@@ -27,8 +26,8 @@ from pinlib.library.record import (
     _check_id,
     _refuse_builtin,
     _toml_string,
-    _validate,
     team_folder,
+    write_new_part,
 )
 from pinlib.library.schema import CATEGORIES, FORMAT
 
@@ -235,10 +234,4 @@ def import_part(library: loader.Library, ibis: IbisFile, component: str,
     text = part_text(ibis, component, pins, new_id, **kw)
     folder = team_folder(into_folder, "an imported part belongs in a team folder")
     target = folder / f"{new_id}.toml"
-    with file_lock(target):
-        if target.exists():
-            raise LibraryError(M.FILE_EXISTS, file=str(target),
-                               hint="choose another id or folder")
-        _validate(library, new_id, target, text)
-        atomic_write(target, text)
-    return target
+    return write_new_part(library, new_id, target, text)

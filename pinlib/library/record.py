@@ -150,6 +150,12 @@ def new_part(library: loader.Library, new_id: str, from_class: str,
         f"recorded = {today.isoformat()} }}",
         "",
     ])
+    return write_new_part(library, new_id, target, text)
+
+
+def write_new_part(library: loader.Library, new_id: str, target: Path, text: str) -> Path:
+    """Write a new part file under its lock: refused when the file exists or when the
+    part would not load beside the library; atomic (a failed write leaves nothing)."""
     with file_lock(target):
         if target.exists():
             raise LibraryError(M.FILE_EXISTS, file=str(target),

@@ -3,31 +3,10 @@ of checks by status (shared by the summary and the detail of `pinlib check`)."""
 
 from __future__ import annotations
 
-import math
-
-from pinlib.core.quantity import format_si
+from pinlib.core.quantity import format_value  # noqa: F401 - its home is core.quantity
 from pinlib.model.result import DesignResult
 
 __all__ = ["format_value", "counts"]
-
-
-def format_value(value, unit: str) -> str:
-    """A figure or check value as text: SI prefix, yes/no, or a dash for none."""
-    if value is None:
-        return "—"
-    if isinstance(value, bool):
-        return "yes" if value else "no"
-    if isinstance(value, str):
-        return value
-    try:
-        x = float(value)
-    except (TypeError, ValueError):
-        return str(value)
-    if not math.isfinite(x):
-        return "∞" if x > 0 else ("−∞" if x < 0 else "—")
-    if not unit:
-        return f"{x:.4g}"
-    return format_si(x, unit)
 
 
 def counts(result: DesignResult) -> dict[str, int]:

@@ -9,7 +9,7 @@ from typing import Any
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
-from pinlib.core.quantity import format_si, parse_ratio
+from pinlib.core.quantity import format_value, parse_ratio
 
 #: A figure that moves by more than this fraction of its old value is listed (5 %).
 DEFAULT_THRESHOLD = 0.05
@@ -84,17 +84,8 @@ def _is_number(x) -> bool:
     return isinstance(x, (int, float)) and not isinstance(x, bool) and math.isfinite(x)
 
 
-def format_figure(value, unit: str) -> str:
-    """A figure value as text: SI prefix and unit, ``yes``/``no``, text as is, ``—`` for none."""
-    if value is None:
-        return "—"
-    if isinstance(value, bool):
-        return "yes" if value else "no"
-    if isinstance(value, str):
-        return value
-    if not unit:  # a ratio or a count: no SI prefix ("847 m" reads badly)
-        return f"{value:.4g}"
-    return format_si(value, unit)
+#: A figure value as text (the one rule of :func:`pinlib.core.quantity.format_value`).
+format_figure = format_value
 
 
 def format_change(rel: float | None) -> str:
