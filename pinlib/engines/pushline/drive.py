@@ -348,30 +348,16 @@ def route_case(net: RouteNet, stretches: Sequence[Stretch], driver: Endpoint,
     from the driver; :meth:`DriveCase.wave_at` gives any device's.
     """
     caps = node_caps(net, {p.ref: p.c_in for p in loads}, extra_c)
-    c_far = sum(p.c_in for p in loads) + extra_c
     src = net.node(driver.ref)
-    c_test = _test_load(driver.device)
-    if driver.pin.drive == "open-drain":
-        rp = float(r_pullup)
-        v_lo, v_hi, r_th = _open_drain_levels(driver, loads, model, rs, rp, v_pullup)
-        distributed = needs_distributed(stretches, r_th, c_far, long)
-        points = {"fall": tree_edges(net, src, r_th, model.t_ramp_fall, caps, v_hi, v_lo,
-                                     distributed=distributed, edge="fall"),
-                  # The pull-up (>> Z0) charges the line as one capacitance.
-                  "rise": tree_edges(net, src, rp, 0.0, caps, v_lo, v_hi, distributed=False,
-                                     edge="rise")}
-        ref = {"rise": _ref_time(0.0, rp * c_test),
-               "fall": _ref_time(model.t_ramp_fall, r_th * c_test)}
-    else:
-        v_lo, v_hi = 0.0, driver.vdd
-        distributed = needs_distributed(stretches, min(model.r_rise, model.r_fall) + rs,
-                                        c_far, long)
-        points = {"rise": tree_edges(net, src, model.r_rise + rs, model.t_ramp_rise, caps,
-                                     0.0, v_hi, distributed=distributed, edge="rise"),
-                  "fall": tree_edges(net, src, model.r_fall + rs, model.t_ramp_fall, caps,
-                                     v_hi, 0.0, distributed=distributed, edge="fall")}
-        ref = {"rise": _ref_time(model.t_ramp_rise, model.r_rise * c_test),
-               "fall": _ref_time(model.t_ramp_fall, model.r_fall * c_test)}
+    plan = edge_plan(stretches, driver, model, loads, rs, extra_c, long=long,
+                     r_pullup=r_pullup, v_pullup=v_pullup)
+    c_far, distributed, v_lo, v_hi = plan.c_far, plan.distributed, plan.v_low, plan.v_high
+    points = {}
+    for edge, (r, ramp, _, v_from, v_to), dist in (
+            ("rise", plan.rise, plan.rise_distributed), ("fall", plan.fall, distributed)):
+        points[edge] = tree_edges(net, src, r, ramp, caps, v_from, v_to, distributed=dist,
+                                  edge=edge)
+    ref = ref_times(driver, model, plan, r_pullup)
     fast = None
     if driver.pin.drive != "open-drain" and model.fast is not None:
         f = model.fast
