@@ -326,3 +326,35 @@ def test_a_routed_line_is_tabulated_and_its_jumps_left_to_the_engine(routed):
             ok = np.isfinite(b.margin)
             np.testing.assert_allclose(a.margin[ok], b.margin[ok], rtol=0,
                                        atol=pptable.MARGIN_TOL)
+
+
+def test_boards_left_to_the_engine_are_counted_by_why(both, routed):
+    by_table, _, _, n = both
+    # a uniform draw lies inside the box and the straight link has no rough cell: every
+    # board the engine took beside the table was close to failing
+    assert by_table.engine_why == {"outside": 0, "rough": 0, "close": by_table.engine_boards}
+    assert ppb.engine_note("link", {"outside": 0, "rough": 0, "close": 3}) == (
+        "bus link: 3 boards evaluated by the engine (3 close to failing)")
+    assert ppb.engine_note("link", {"outside": 1, "rough": 2, "close": 3}) == (
+        "bus link: 6 boards evaluated by the engine (1 outside the tolerance box, 2 in a "
+        "table cell a line's results jump or bend across, 3 close to failing)")
+    # the routed bus: board 0 lies in sclk's jump cell, and is counted as such
+    routed_table, _, table, factors, n = routed
+    why = routed_table.engine_why
+    assert sum(why.values()) == routed_table.engine_boards and why["rough"] >= 1
+    note = ppb.engine_note("shared", why)
+    assert f"{why['rough']} in a table cell a line's results jump or bend across" in note
+    assert "outside" not in note  # no board of the draw lies outside the box
+
+
+def test_a_board_outside_the_box_is_counted_as_such(link):
+    design, bus = link
+    n = 60
+    factors = _factors(bus, n, seed=7)
+    for key in factors:
+        if key[0] == "line-length":
+            factors[key][:2] = 1.3  # beyond the 10 % length tolerance the box covers
+    got = ppb.build(bus, design, factors, n, nominal=evaluate_bus(bus, design), tables={})
+    assert got.engine_why["outside"] == 2
+    assert sum(got.engine_why.values()) == got.engine_boards
+    assert "2 outside the tolerance box" in ppb.engine_note("link", got.engine_why)

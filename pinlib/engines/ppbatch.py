@@ -52,7 +52,18 @@ __all__ = [
     "flat_checks",
     "number_or_nan",
     "build",
+    "engine_note",
+    "WHY",
 ]
+
+
+#: Why a board in a run with a table went to the engine, in the order a board's reason is
+#: taken: beyond the box the table covers, in a cell of the table across which a line's
+#: results jump or bend (still rough at the finest width), or an interpolated margin
+#: within three times the table's error of failing.
+WHY = {"outside": "outside the tolerance box",
+       "rough": "in a table cell a line's results jump or bend across",
+       "close": "close to failing"}
 
 
 @dataclass
@@ -72,6 +83,10 @@ class PpBatch:
         How the variants were evaluated (engine, or tables and their verification). [1]
     engine_boards : int
         Variants evaluated by the engine itself. [1]
+    engine_why : dict
+        Where a table stood in for the engine, the variants it left to the engine by
+        reason (:data:`WHY`; each variant counted once, under the first reason that
+        applies); empty without a table (every variant the engine's). [1]
     """
 
     n: int
@@ -79,6 +94,7 @@ class PpBatch:
     items: list
     notes: list = field(default_factory=list)
     engine_boards: int = 0
+    engine_why: dict = field(default_factory=dict)
 
     def checks(self):
         """Every check: (None, BatchCheck), like the open-drain
@@ -136,6 +152,7 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
              if keys else np.zeros((n, 0)))
     notes: list[str] = []
     todo = np.ones(n, dtype=bool)  # the variants the engine evaluates
+    why: dict[str, int] = {}       # and why, where a table stands in for the engine
     grid = _table(bus, design, chosen, tables, span, floor, n, progress) if keys else None
     if grid is not None:
         inside = grid.inside(factors, n)
@@ -149,16 +166,21 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
                                 [nm["name"] for nm in names])
             margin[inside], value[inside] = got["margin"], got["value"]
             limit[inside], status[inside] = got["limit"], got["status"]
-        todo = ~inside
         # a line's factor in a cell its results jump or bend across: the engine's
-        todo[inside] |= grid.declined({k: np.asarray(f, dtype=float).reshape(n)[inside]
+        rough = np.zeros(n, dtype=bool)
+        rough[inside] = grid.declined({k: np.asarray(f, dtype=float).reshape(n)[inside]
                                        for k, f in factors.items()}, int(inside.sum()))
         # A board whose interpolated margin is within the table's error of failing goes
         # to the engine: its pass or fail must not rest on the interpolation.
         band = 3.0 * grid.max_error + 1e-12
         moving = grid.interpolated([nm["name"] for nm in names])
+        close = np.zeros(n, dtype=bool)
         if moving.any():
-            todo |= np.any(np.abs(margin[:, moving]) < band, axis=1)
+            close = np.any(np.abs(margin[:, moving]) < band, axis=1)
+        todo = ~inside | rough | close
+        why = {"outside": int(np.count_nonzero(~inside)),
+               "rough": int(np.count_nonzero(rough & inside)),
+               "close": int(np.count_nonzero(close & inside & ~rough))}
         notes.append(_table_note(bus, grid))
     elif tables is not None and isinstance(tables.get(bus.id), pptable.Refusal):
         notes.append(f"bus {bus.id}: every board evaluated by the engine (no table over its "
@@ -188,7 +210,15 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
             ec.id, "", nm["signal"], value[:, j] if has_value else None,
             limit[:, j] if has_value else None, margin[:, j] if has_margin else None,
             status[:, j], ec.unit))
-    return PpBatch(n, names, items, notes, int(where.size))
+    return PpBatch(n, names, items, notes, int(where.size), why)
+
+
+def engine_note(bus_id: str, why: dict) -> str:
+    """The note of a run that says how many of a bus's boards the engine evaluated
+    beside its table, and why (``why``: counts by the keys of :data:`WHY`)."""
+    total = sum(why.values())
+    parts = ", ".join(f"{why[k]} {text}" for k, text in WHY.items() if why.get(k))
+    return f"bus {bus_id}: {total} boards evaluated by the engine ({parts})"
 
 
 def prepare_table(bus: Bus, design, nominal, tables: dict, span: float, floor: float,
