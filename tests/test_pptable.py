@@ -358,3 +358,35 @@ def test_a_board_outside_the_box_is_counted_as_such(link):
     assert got.engine_why["outside"] == 2
     assert sum(got.engine_why.values()) == got.engine_boards
     assert "2 outside the tolerance box" in ppb.engine_note("link", got.engine_why)
+
+
+def test_a_table_takes_fewer_engine_runs_than_the_boards_it_stands_in_for(tmp_path):
+    # the route's jump cells refine its table past the first grid's 7 x 3 nodes and 20
+    # verification boards (66 nodes + 20 when the run is large); for a run of 60 boards
+    # the table must cost fewer than 60 engine runs, or the engine alone is cheaper
+    text = (DATA / "spi-route.toml").read_text(encoding="utf-8").replace(
+        'supply = "3.3 V"\n', 'supply = "3.3 V"\nsupply_tolerance = "5 %"\n'
+        'length_tolerance = "10 %"\n', 1)
+    path = tmp_path / "route-tol.toml"
+    path.write_text(text, encoding="utf-8")
+    design = load_design(path)
+    bus = design.buses[0]
+    n = 60
+    nominal = evaluate_bus(bus, design)
+    first = pptable.NODES["length"] * pptable.NODES["supply"] + pptable.VERIFY
+    assert first < n  # the first grid pays, so a table is built
+    tables: dict = {}
+    ppb.prepare_table(bus, design, nominal, tables, 1.0, 1e-6, n)
+    table = tables[bus.id]
+    assert isinstance(table, pptable.LineTable), table
+    assert first < table.evaluations < n  # refined, within the run's boards
+    # what it declines goes to the engine, and every board agrees with the engine
+    factors = _factors(bus, 12, seed=4)
+    by_table = ppb.build(bus, design, factors, 12, nominal=nominal, tables=tables)
+    by_engine = ppb.build(bus, design, factors, 12, nominal=nominal)
+    for a, b in zip(by_table.items, by_engine.items, strict=True):
+        np.testing.assert_array_equal(a.status, b.status)
+        if b.margin is not None:
+            ok = np.isfinite(b.margin)
+            np.testing.assert_allclose(a.margin[ok], b.margin[ok], rtol=0,
+                                       atol=pptable.MARGIN_TOL)

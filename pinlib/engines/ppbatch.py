@@ -236,7 +236,15 @@ def prepare_table(bus: Bus, design, nominal, tables: dict, span: float, floor: f
 
 def _table(bus, design, chosen, tables, span, floor, distinct, progress):
     """The bus's table from ``tables``, built on first use when it costs fewer engine
-    evaluations than the distinct variants; None when there is none."""
+    evaluations than the distinct variants; None when there is none.
+
+    A table's first grid and its verification boards are what it costs at least; a
+    routed line's rough cells then add nodes (:mod:`pinlib.engines.pptable`: the route
+    of tests/data/spi-route.toml took 66 nodes where its first grid has 21).  The table
+    is given the variants less one as its budget, so that it never takes as many engine
+    evaluations as the variants would: a rough cell it cannot afford to bisect further
+    is declined, and its boards go to the engine with the rest of the run's.
+    """
     if tables is None:
         return None
     if bus.id in tables:
@@ -246,7 +254,8 @@ def _table(bus, design, chosen, tables, span, floor, distinct, progress):
     cost = math.prod(pptable.NODES[ax.kind] for ax in axes) + pptable.VERIFY
     if cost >= distinct:
         return None  # cheaper to run the engine on each variant (and not remembered)
-    got = tables[bus.id] = pptable.tabulate(bus, design, axes, chosen, progress=progress)
+    got = tables[bus.id] = pptable.tabulate(bus, design, axes, chosen, progress=progress,
+                                            budget=distinct - 1)
     return got if isinstance(got, pptable.LineTable) else None
 
 

@@ -358,7 +358,8 @@ def _record(bus: Bus, res, sa) -> tuple[dict, list]:
 
 
 def tabulate(bus: Bus, design: Design, axes: list[Axis],
-             resistors: dict, *, progress=None) -> LineTable | Refusal:
+             resistors: dict, *, progress=None,
+             budget: int | None = None) -> LineTable | Refusal:
     """Build and verify the table of a push-pull bus, or say why it cannot stand in for
     the engine (see the module notes).
 
@@ -374,6 +375,11 @@ def tabulate(bus: Bus, design: Design, axes: list[Axis],
         Series resistors fixed for "auto" lines (``ppvariant.chosen_resistors``). [Ω]
     progress : bool, callable or None, optional
         A bar over the engine evaluations (see :func:`pinlib.core.progress.progress_bar`). [1]
+    budget : int, optional
+        The most engine evaluations the table may take, nodes and verification boards
+        together: rough cells are bisected only while the finer grid stays within it
+        (cells left wider are declined all the same).  :data:`MAX_NODES` nodes at most
+        in any case. [1]
     """
     from pinlib.core.progress import progress_bar
 
@@ -385,17 +391,18 @@ def tabulate(bus: Bus, design: Design, axes: list[Axis],
                        unit="engine run", enabled=progress)
     with bar:
         try:
-            return _tabulate(bus, design, axes, resistors, grids, shape, bar)
+            return _tabulate(bus, design, axes, resistors, grids, shape, bar, budget)
         except _Refused as refused:
             return Refusal(str(refused))
 
 
-def _tabulate(bus, design, axes, resistors, grids, shape, bar) -> LineTable:
+def _tabulate(bus, design, axes, resistors, grids, shape, bar, budget) -> LineTable:
     done: dict = {}  # engine evaluations by node (coordinates): kept as the grid refines
+    most = MAX_NODES if budget is None else min(MAX_NODES, budget - VERIFY)
     table = _assemble(bus, design, axes, resistors, grids, done, bar, {})
     for _ in range(REFINE):
         finer = _refined(table)
-        if finer is None or math.prod(g.size for g in finer) > MAX_NODES:
+        if finer is None or math.prod(g.size for g in finer) > most:
             break
         bar.grow(math.prod(g.size for g in finer) - math.prod(g.size for g in grids))
         grids = finer
