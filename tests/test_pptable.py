@@ -390,3 +390,64 @@ def test_a_table_takes_fewer_engine_runs_than_the_boards_it_stands_in_for(tmp_pa
             ok = np.isfinite(b.margin)
             np.testing.assert_allclose(a.margin[ok], b.margin[ok], rtol=0,
                                        atol=pptable.MARGIN_TOL)
+
+
+def test_a_flight_that_jumps_is_refined_and_left_to_the_engine(tmp_path, monkeypatch):
+    # On this route the CIPO edge from U2 reaches U1's VIH on its first step only from
+    # a length factor of about 1.2 on (its latest flight then moves 1.8 ns earlier; the
+    # engine, 2026-12-03): here the same jump is put inside the box, at a CIPO length
+    # factor of 1.047, onto the engine's own flights, which every check is built from.
+    from pinlib.engines import spi
+    from pinlib.engines.pushline import Flight
+
+    text = (DATA / "spi-route.toml").read_text(encoding="utf-8").replace(
+        'supply = "3.3 V"\n', 'supply = "3.3 V"\nlength_tolerance = "10 %"\n', 1)
+    path = tmp_path / "route-tol.toml"
+    path.write_text(text, encoding="utf-8")
+    design = load_design(path)
+    bus = design.buses[0]
+    nominal_cipo = sum(s.length for s in bus.lines["cipo"].sections)
+    analysis = spi.spi_analysis
+
+    def jumping(varied, design_):
+        sa = analysis(varied, design_)
+        factor = sum(s.length for s in varied.lines["cipo"].sections) / nominal_cipo
+        if factor > 1.047:
+            p = sa.peripherals[0]
+            moved = replace(p, cipo=Flight(p.cipo.early, p.cipo.late - 1.8e-9))
+            sa = replace(sa, peripherals=[moved, *sa.peripherals[1:]])
+            from pinlib.engines.spi import budget_terms
+            sa = replace(sa, terms=budget_terms(sa.mode, sa.controller, sa.peripherals,
+                                                sa.t_bridge))
+        return sa
+
+    monkeypatch.setattr(spi, "spi_analysis", jumping)
+    axes = pptable.axes_of(ppb.parameter_specs(bus), 1.0, 1e-6)
+    chosen = ppb.chosen_resistors(evaluate_bus(bus, design))
+    table = pptable.tabulate(bus, design, axes, chosen)
+    assert isinstance(table, pptable.LineTable), table
+    assert table.max_error <= pptable.MARGIN_TOL
+    # the jump's cell is bisected down to a narrow one, which the table declines
+    length = next(i for i, ax in enumerate(table.axes) if ax.kind == "length")
+    g = table._grids[length]
+    declined = table._rough["cipo"][length][1]
+    jump = [c for c in declined if g[c] < 1.047 <= g[c + 1]]
+    assert jump and all(g[c + 1] - g[c] < 0.2 / 6 / 16 for c in declined)
+    # a board there is the engine's; one beside it on either side the table's
+    key = next(k for ax in table.axes for k in ax.keys if k[2] == "cipo")
+    x = np.array([0.5 * (g[jump[0]] + g[jump[0] + 1]), 1.03, 1.06])
+    at = {k: x if k == key else np.ones(3) for ax in table.axes for k in ax.keys}
+    assert list(table.declined(at, 3)) == [True, False, False]
+    # next to the jump the table's margins are the (jumping) engine's: a cubic across
+    # it missed CIPO setup at U2 by 0.21 of its limit at a factor of 1.045, unnoticed by
+    # the verification boards
+    from pinlib.engines import ppnodes
+    from pinlib.engines import ppvariant as ppv
+    x = np.array([1.035, 1.04, 1.045, 1.055])
+    got = table.evaluate({k: x for ax in table.axes for k in ax.keys}, x.size)
+    for b, f in enumerate(x):
+        varied = ppv.vary_bus(bus, {k: f for ax in table.axes for k in ax.keys}.get, chosen)
+        res, _ = ppnodes.evaluate(varied, design)
+        for j, (_, c) in enumerate(ppv.flat_checks(res)):
+            if c.margin is not None and math.isfinite(c.margin):
+                assert got["margin"][b, j] == pytest.approx(c.margin, abs=pptable.MARGIN_TOL)

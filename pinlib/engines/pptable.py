@@ -21,9 +21,12 @@ bus's timing checks are sums of flights from several lines
    :func:`pinlib.model.result.check_min`; statuses come from the margins by the engine's
    rule (:func:`pinlib.model.result.status_codes`).  A device's ``supply-range`` check
    is the engine's rule at the board's own rail (nothing interpolated).
-4. **Rough cells.**  A line's margin can jump or bend across a cell (on a routed line a
-   stub's receiver sees a stepped edge, whose 10-90 % time jumps as a step's plateau
-   crosses 90 %): :mod:`pinlib.engines.tablegrid` finds such cells from the nodes, they
+4. **Rough cells.**  A line's margin or flight can jump or bend across a cell (on a
+   routed line a stub's receiver sees a stepped edge, whose 10-90 % time jumps as a
+   step's plateau crosses 90 %, and whose first crossing of a threshold jumps from one
+   step to the next; a flight is judged in units of the budget's smallest
+   requirement, what a flight's error moves a timing margin by):
+   :mod:`pinlib.engines.tablegrid` finds such cells from the nodes, they
    are bisected (up to :data:`REFINE` times, the nodes the engine already gave kept),
    no other board's stencil spans them, and a board in a cell still rough at the finest
    width is left to the engine (:meth:`LineTable.declined`).
@@ -414,17 +417,43 @@ def _assemble(bus, design, axes, resistors, grids, done, bar, spans) -> LineTabl
 
 
 def _rough(table: LineTable, before: dict) -> None:
-    """Each line's rough cells along each axis, where one of its interpolated margins is
-    not smooth (:func:`pinlib.engines.tablegrid.rough_spans`, :data:`ROUGH_TOL`).  Sets
-    ``_rough`` and ``_spans``."""
-    for sig, (_, values) in table._lines.items():
+    """Each line's rough cells along each axis, where one of its interpolated margins or
+    one of the flights it gives the timing budget is not smooth
+    (:func:`pinlib.engines.tablegrid.rough_spans`, :data:`ROUGH_TOL`).  Sets ``_rough``
+    and ``_spans``.
+
+    A flight enters a timing term's available time with a coefficient of one, so a
+    flight missed by ``d`` moves that term's margin by ``d / |required|``: flights are
+    judged in units of the smallest requirement of the budget, against the same
+    tolerance as the margins."""
+    scale = _flight_scale(table)
+    for sig, (labels, values) in table._lines.items():
         cols = [p[2][0] for p in table._checks if p[0] == "line" and p[1] == sig]
-        got = [rough_spans(g, np.moveaxis(values[..., cols], a, -1).reshape(-1, g.size)
-                           if cols else np.zeros((0, g.size)), ROUGH_TOL,
-                           before.get(sig, [[]] * len(table._grids))[a])
-               for a, g in enumerate(table._grids)]
+        flights = [i for i, label in enumerate(labels) if label[0] == "flight"]
+        got = []
+        for a, g in enumerate(table._grids):
+            rows = np.concatenate([_along(values[..., cols], a),
+                                   _along(values[..., flights], a) / scale])
+            got.append(rough_spans(g, rows, ROUGH_TOL,
+                                   before.get(sig, [[]] * len(table._grids))[a]))
         table._rough[sig] = [(avoided, now) for avoided, now, _ in got]
         table._spans[sig] = [span for _, _, span in got]
+
+
+def _along(values: np.ndarray, axis: int) -> np.ndarray:
+    """``values`` (grid shape + (q,)) as rows along one axis, shape ``(rows, nodes)``."""
+    return np.moveaxis(values, axis, -1).reshape(-1, values.shape[axis])
+
+
+def _flight_scale(table: LineTable) -> float:
+    """The time that one unit of a timing term's margin is: the smallest requirement of
+    the budget at the table's first node (the clock period where none is recorded). [s]"""
+    sa = table._analysis
+    if sa is None:
+        return 1.0  # no budget: a line of a GPIO bus has no flights
+    required = [abs(float(t.required)) for t in sa.terms if float(t.required) != 0.0]
+    periods = [p[2] for p in table._checks if p[0] == "term"]
+    return min(required) if required else (periods[0] if periods else 1.0)
 
 
 def _refined(table: LineTable) -> list | None:
