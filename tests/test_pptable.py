@@ -451,3 +451,57 @@ def test_a_flight_that_jumps_is_refined_and_left_to_the_engine(tmp_path, monkeyp
         for j, (_, c) in enumerate(ppv.flat_checks(res)):
             if c.margin is not None and math.isfinite(c.margin):
                 assert got["margin"][b, j] == pytest.approx(c.margin, abs=pptable.MARGIN_TOL)
+
+
+def test_a_yes_no_check_whose_status_moves_is_tabulated_by_its_nodes(tmp_path):
+    # On this route the CIPO edge from U2 reaches U1's VIH on its first step from a
+    # length factor of about 1.195 on, and then rings at U1 (the engine, 2026-12-03):
+    # the ringing check (yes/no) turns from pass to warn and the latest flight moves
+    # 1.8 ns earlier.  The table was refused ("its status moves"); now the cell where
+    # the status changes is rough like a jump, and each board takes its nodes' status.
+    text = (DATA / "spi-route.toml").read_text(encoding="utf-8").replace(
+        'supply = "3.3 V"\n', 'supply = "3.3 V"\nsupply_tolerance = "5 %"\n'
+        'length_tolerance = "20 %"\n', 1)
+    path = tmp_path / "route-20.toml"
+    path.write_text(text, encoding="utf-8")
+    design = load_design(path)
+    bus = design.buses[0]
+    nominal = evaluate_bus(bus, design)
+    tables: dict = {}
+    ppb.prepare_table(bus, design, nominal, tables, 1.0, 1e-6, 20_000)
+    table = tables[bus.id]
+    assert isinstance(table, pptable.LineTable), table
+    length = next(i for i, ax in enumerate(table.axes) if ax.kind == "length")
+    g = table._grids[length]
+    jump = [c for c in table._rough["cipo"][length][1] if g[c] < 1.2 and g[c + 1] > 1.19]
+    assert jump
+    # boards around the jump (in its cell, and either side of it) and some drawn
+    n = 12
+    factors = _factors(bus, n, seed=2)
+    keys = [k for k in factors if k[0] == "line-length"]
+    for b, x in enumerate((0.5 * (g[jump[0]] + g[jump[0] + 1]), 1.18, 1.2)):
+        for k in keys:
+            factors[k][b] = x
+    by_table = ppb.build(bus, design, factors, n, nominal=nominal, tables=tables)
+    by_engine = ppb.build(bus, design, factors, n, nominal=nominal)
+    assert by_table.engine_why["rough"] >= 1 and by_table.engine_boards < n
+    ringing = next(i for i, nm in enumerate(by_engine.names)
+                   if nm["name"] == "shared cipo ringing U1")
+    assert set(by_engine.items[ringing].status) == {0, 1}  # pass and warn both drawn
+    for a, b in zip(by_table.items, by_engine.items, strict=True):
+        np.testing.assert_array_equal(a.status, b.status)
+        if b.margin is not None:
+            ok = np.isfinite(b.margin)
+            np.testing.assert_allclose(a.margin[ok], b.margin[ok], rtol=0,
+                                       atol=pptable.MARGIN_TOL)
+
+
+def test_a_status_that_changes_makes_its_cell_rough_on_any_axis():
+    # a status takes a few values: any change across a cell is a step (common practice,
+    # no source), found on a three-node axis too, where a cubic has too few nodes
+    g = np.array([0.95, 1.0, 1.05])
+    smooth = np.array([[0.1, 0.2, 0.3]])
+    _, now, _ = tablegrid.rough_spans(g, smooth, 2e-3, [], np.array([[0, 0, 1], [0, 0, 0]]))
+    assert list(now) == [1]
+    _, now, _ = tablegrid.rough_spans(g, smooth, 2e-3, [], np.zeros((2, 3)))
+    assert not now.size

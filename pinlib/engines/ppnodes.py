@@ -51,7 +51,8 @@ def record(bus: Bus, res, sa) -> tuple[dict, list]:
             per_line.setdefault(sig, []).extend(
                 [("check", nm["name"], "margin", _num(c.margin)),
                  ("check", nm["name"], "value", _num(c.value)),
-                 ("check", nm["name"], "limit", _num(c.limit))])
+                 ("check", nm["name"], "limit", _num(c.limit)),
+                 ("check", nm["name"], "status", STATUS_CODES[c.status])])
     if sa is not None:
         for i, p in enumerate(sa.peripherals):
             for e in ("rise", "fall"):
@@ -69,7 +70,13 @@ def record(bus: Bus, res, sa) -> tuple[dict, list]:
 
 
 def plan(names, node_checks, labels, values, sa, bus, design) -> list:
-    """How each check is filled: a constant, a line's interpolated numbers, or a term."""
+    """How each check is filled: a constant, a line's interpolated numbers, or a term.
+
+    A line check is ``("line", signal, slots, rule, code)``: ``slots`` its margin, value
+    and limit among the line's numbers (and its status, for the rule ``"nodes"``);
+    ``rule`` how its status is found: 2 from its margin, 1 from its margin at most
+    warn (a rule of thumb), ``"nodes"`` its nodes' (a yes/no check whose status moves),
+    falsy the constant ``code``."""
     warn = design.warn_margin
     plans = []
     term_k = 0
@@ -113,7 +120,12 @@ def plan(names, node_checks, labels, values, sa, bus, design) -> list:
         by_margin = has_margin and all(STATUS_CODES[c.status] == min(int(status_codes(
             np.array([_num(c.margin)]), warn)[0]), cap) for c in at_nodes)
         if not by_margin and len(codes) != 1:
-            raise Refused(f"{nm['name']}: its status moves, but not with its margin")
+            if has_margin:
+                raise Refused(f"{nm['name']}: its status moves, but not with its margin")
+            # a yes/no check (ringing) whose status moves: each board takes its nodes'
+            # status, the cells where it changes being rough (pptable._rough)
+            plans.append(("line", sig, (*slots, base + 3), "nodes", min(codes)))
+            continue
         if has_margin and not np.isfinite(mgs).all() and len(np.unique(mgs)) != 1:
             raise Refused(f"{nm['name']}: a margin not finite at every node")
         plans.append(("line", sig, tuple(slots), by_margin and cap, min(codes)))

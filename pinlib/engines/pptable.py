@@ -29,10 +29,13 @@ bus's timing checks are sums of flights from several lines
    :mod:`pinlib.engines.tablegrid` finds such cells from the nodes, they
    are bisected (up to :data:`REFINE` times, the nodes the engine already gave kept),
    no other board's stencil spans them, and a board in a cell still rough at the finest
-   width is left to the engine (:meth:`LineTable.declined`).
+   width is left to the engine (:meth:`LineTable.declined`).  A yes/no check of a line
+   (ringing) whose status moves takes its nodes' status, a cell across which that
+   status changes being rough on any axis.
 5. **Verification.**  The table is refused (the caller then runs the engine on every
-   board) when the nodes do not all give the same checks, when a check's status does
-   not follow from its margin, or when, at :data:`VERIFY` boards drawn inside the box,
+   board) when the nodes do not all give the same checks, when the status of a check
+   with a margin does not follow from it, or when, at :data:`VERIFY` boards drawn
+   inside the box,
    a margin interpolated from the table differs from the engine's by more than
    :data:`MARGIN_TOL`.  The largest difference found is reported, and the caller runs
    the engine on every board with an interpolated margin within three times that
@@ -242,9 +245,11 @@ class LineTable:
             elif kind == "line":
                 _, sig, slots, margin_rule, code = plan
                 vals = got[sig]
-                for arr, slot in zip((margin, value, limit), slots, strict=True):
+                for arr, slot in zip((margin, value, limit), slots[:3], strict=True):
                     arr[j] = vals[:, slot]
-                if margin_rule == 1:   # a rule of thumb: its status from its margin, at most warn
+                if margin_rule == "nodes":  # its nodes' status (equal across the cell)
+                    status[j] = np.clip(np.rint(vals[:, slots[3]]), 0, 2)
+                elif margin_rule == 1:   # a rule of thumb: its status from its margin, at most warn
                     status[j] = np.minimum(status_codes(margin[j], self._warn), 1)
                 elif margin_rule:
                     by_margin.append(j)
@@ -428,14 +433,18 @@ def _rough(table: LineTable, before: dict) -> None:
     tolerance as the margins."""
     scale = _flight_scale(table)
     for sig, (labels, values) in table._lines.items():
-        cols = [p[2][0] for p in table._checks if p[0] == "line" and p[1] == sig]
+        mine = [p for p in table._checks if p[0] == "line" and p[1] == sig]
+        cols = [p[2][0] for p in mine]
+        # a yes/no check whose status moves: a cell where its status changes is rough
+        steps = [p[2][3] for p in mine if p[3] == "nodes"]
         flights = [i for i, label in enumerate(labels) if label[0] == "flight"]
         got = []
         for a, g in enumerate(table._grids):
             rows = np.concatenate([_along(values[..., cols], a),
                                    _along(values[..., flights], a) / scale])
             got.append(rough_spans(g, rows, ROUGH_TOL,
-                                   before.get(sig, [[]] * len(table._grids))[a]))
+                                   before.get(sig, [[]] * len(table._grids))[a],
+                                   _along(values[..., steps], a)))
         table._rough[sig] = [(avoided, now) for avoided, now, _ in got]
         table._spans[sig] = [span for _, _, span in got]
 
