@@ -15,7 +15,8 @@ its time grid from each variant's own time constants and delays, so the waveform
 solvers cannot share one batched solve across variants.  A large batch is evaluated
 from tables of the engine over the tolerance box (:mod:`pinlib.engines.pptable`), built
 once per run, verified against the engine, with the engine taking every board outside
-the box or close to failing.
+the box, in a cell of the table a line's results jump or bend across, or close to
+failing (:data:`WHY`; a run's notes count each).
 
 A device's ``capacitance_tolerance`` scales the capacitance of every pin it has on
 the bus (``Device.capacitance_factor``); the stored part is not changed.
