@@ -1696,6 +1696,16 @@ def _(env):
         GRID, 1.0, 0.0, 50.0, SECTION, 0.0, c_mid=1e-12, mid_junction=5), env)
 
 
+@case("BATCH_SHAPES_CLASH", M.BATCH_SHAPES_CLASH.format(first="vdd", a=(2,), second="c_load",
+                                                       b=(3,)))
+def _(env):
+    import numpy as np
+    err = _fails(lambda e: _waveform().lumped_response(RAMP_T, np.ones(2), 0.0, 50.0,
+                                                       np.full(3, 1e-12)), env)
+    assert err.field == "vdd, c_load"
+    return err
+
+
 TREE = [(0, 1, 50.0, 1e-9), (1, 2, 50.0, 1e-9)]
 
 

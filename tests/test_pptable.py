@@ -326,3 +326,182 @@ def test_a_routed_line_is_tabulated_and_its_jumps_left_to_the_engine(routed):
             ok = np.isfinite(b.margin)
             np.testing.assert_allclose(a.margin[ok], b.margin[ok], rtol=0,
                                        atol=pptable.MARGIN_TOL)
+
+
+def test_boards_left_to_the_engine_are_counted_by_why(both, routed):
+    by_table, _, _, n = both
+    # a uniform draw lies inside the box and the straight link has no rough cell: every
+    # board the engine took beside the table was close to failing
+    assert by_table.engine_why == {"outside": 0, "rough": 0, "close": by_table.engine_boards}
+    assert ppb.engine_note("link", {"outside": 0, "rough": 0, "close": 3}) == (
+        "bus link: 3 boards evaluated by the engine (3 close to failing)")
+    assert ppb.engine_note("link", {"outside": 1, "rough": 2, "close": 3}) == (
+        "bus link: 6 boards evaluated by the engine (1 outside the tolerance box, 2 in a "
+        "table cell a line's results jump or bend across, 3 close to failing)")
+    # the routed bus: board 0 lies in sclk's jump cell, and is counted as such
+    routed_table, _, table, factors, n = routed
+    why = routed_table.engine_why
+    assert sum(why.values()) == routed_table.engine_boards and why["rough"] >= 1
+    note = ppb.engine_note("shared", why)
+    assert f"{why['rough']} in a table cell a line's results jump or bend across" in note
+    assert "outside" not in note  # no board of the draw lies outside the box
+
+
+def test_a_board_outside_the_box_is_counted_as_such(link):
+    design, bus = link
+    n = 60
+    factors = _factors(bus, n, seed=7)
+    for key in factors:
+        if key[0] == "line-length":
+            factors[key][:2] = 1.3  # beyond the 10 % length tolerance the box covers
+    got = ppb.build(bus, design, factors, n, nominal=evaluate_bus(bus, design), tables={})
+    assert got.engine_why["outside"] == 2
+    assert sum(got.engine_why.values()) == got.engine_boards
+    assert "2 outside the tolerance box" in ppb.engine_note("link", got.engine_why)
+
+
+def test_a_table_takes_fewer_engine_runs_than_the_boards_it_stands_in_for(tmp_path):
+    # the route's jump cells refine its table past the first grid's 7 x 3 nodes and 20
+    # verification boards (66 nodes + 20 when the run is large); for a run of 60 boards
+    # the table must cost fewer than 60 engine runs, or the engine alone is cheaper
+    text = (DATA / "spi-route.toml").read_text(encoding="utf-8").replace(
+        'supply = "3.3 V"\n', 'supply = "3.3 V"\nsupply_tolerance = "5 %"\n'
+        'length_tolerance = "10 %"\n', 1)
+    path = tmp_path / "route-tol.toml"
+    path.write_text(text, encoding="utf-8")
+    design = load_design(path)
+    bus = design.buses[0]
+    n = 60
+    nominal = evaluate_bus(bus, design)
+    first = pptable.NODES["length"] * pptable.NODES["supply"] + pptable.VERIFY
+    assert first < n  # the first grid pays, so a table is built
+    tables: dict = {}
+    ppb.prepare_table(bus, design, nominal, tables, 1.0, 1e-6, n)
+    table = tables[bus.id]
+    assert isinstance(table, pptable.LineTable), table
+    assert first < table.evaluations < n  # refined, within the run's boards
+    # what it declines goes to the engine, and every board agrees with the engine
+    factors = _factors(bus, 12, seed=4)
+    by_table = ppb.build(bus, design, factors, 12, nominal=nominal, tables=tables)
+    by_engine = ppb.build(bus, design, factors, 12, nominal=nominal)
+    for a, b in zip(by_table.items, by_engine.items, strict=True):
+        np.testing.assert_array_equal(a.status, b.status)
+        if b.margin is not None:
+            ok = np.isfinite(b.margin)
+            np.testing.assert_allclose(a.margin[ok], b.margin[ok], rtol=0,
+                                       atol=pptable.MARGIN_TOL)
+
+
+def test_a_flight_that_jumps_is_refined_and_left_to_the_engine(tmp_path, monkeypatch):
+    # On this route the CIPO edge from U2 reaches U1's VIH on its first step only from
+    # a length factor of about 1.2 on (its latest flight then moves 1.8 ns earlier; the
+    # engine, 2026-12-03): here the same jump is put inside the box, at a CIPO length
+    # factor of 1.047, onto the engine's own flights, which every check is built from.
+    from pinlib.engines import spi
+    from pinlib.engines.pushline import Flight
+
+    text = (DATA / "spi-route.toml").read_text(encoding="utf-8").replace(
+        'supply = "3.3 V"\n', 'supply = "3.3 V"\nlength_tolerance = "10 %"\n', 1)
+    path = tmp_path / "route-tol.toml"
+    path.write_text(text, encoding="utf-8")
+    design = load_design(path)
+    bus = design.buses[0]
+    nominal_cipo = sum(s.length for s in bus.lines["cipo"].sections)
+    analysis = spi.spi_analysis
+
+    def jumping(varied, design_):
+        sa = analysis(varied, design_)
+        factor = sum(s.length for s in varied.lines["cipo"].sections) / nominal_cipo
+        if factor > 1.047:
+            p = sa.peripherals[0]
+            moved = replace(p, cipo=Flight(p.cipo.early, p.cipo.late - 1.8e-9))
+            sa = replace(sa, peripherals=[moved, *sa.peripherals[1:]])
+            from pinlib.engines.spi import budget_terms
+            sa = replace(sa, terms=budget_terms(sa.mode, sa.controller, sa.peripherals,
+                                                sa.t_bridge))
+        return sa
+
+    monkeypatch.setattr(spi, "spi_analysis", jumping)
+    axes = pptable.axes_of(ppb.parameter_specs(bus), 1.0, 1e-6)
+    chosen = ppb.chosen_resistors(evaluate_bus(bus, design))
+    table = pptable.tabulate(bus, design, axes, chosen)
+    assert isinstance(table, pptable.LineTable), table
+    assert table.max_error <= pptable.MARGIN_TOL
+    # the jump's cell is bisected down to a narrow one, which the table declines
+    length = next(i for i, ax in enumerate(table.axes) if ax.kind == "length")
+    g = table._grids[length]
+    declined = table._rough["cipo"][length][1]
+    jump = [c for c in declined if g[c] < 1.047 <= g[c + 1]]
+    assert jump and all(g[c + 1] - g[c] < 0.2 / 6 / 16 for c in declined)
+    # a board there is the engine's; one beside it on either side the table's
+    key = next(k for ax in table.axes for k in ax.keys if k[2] == "cipo")
+    x = np.array([0.5 * (g[jump[0]] + g[jump[0] + 1]), 1.03, 1.06])
+    at = {k: x if k == key else np.ones(3) for ax in table.axes for k in ax.keys}
+    assert list(table.declined(at, 3)) == [True, False, False]
+    # next to the jump the table's margins are the (jumping) engine's: a cubic across
+    # it missed CIPO setup at U2 by 0.21 of its limit at a factor of 1.045, unnoticed by
+    # the verification boards
+    from pinlib.engines import ppnodes
+    from pinlib.engines import ppvariant as ppv
+    x = np.array([1.035, 1.04, 1.045, 1.055])
+    got = table.evaluate({k: x for ax in table.axes for k in ax.keys}, x.size)
+    for b, f in enumerate(x):
+        varied = ppv.vary_bus(bus, {k: f for ax in table.axes for k in ax.keys}.get, chosen)
+        res, _ = ppnodes.evaluate(varied, design)
+        for j, (_, c) in enumerate(ppv.flat_checks(res)):
+            if c.margin is not None and math.isfinite(c.margin):
+                assert got["margin"][b, j] == pytest.approx(c.margin, abs=pptable.MARGIN_TOL)
+
+
+def test_a_yes_no_check_whose_status_moves_is_tabulated_by_its_nodes(tmp_path):
+    # On this route the CIPO edge from U2 reaches U1's VIH on its first step from a
+    # length factor of about 1.195 on, and then rings at U1 (the engine, 2026-12-03):
+    # the ringing check (yes/no) turns from pass to warn and the latest flight moves
+    # 1.8 ns earlier.  The table was refused ("its status moves"); now the cell where
+    # the status changes is rough like a jump, and each board takes its nodes' status.
+    text = (DATA / "spi-route.toml").read_text(encoding="utf-8").replace(
+        'supply = "3.3 V"\n', 'supply = "3.3 V"\nsupply_tolerance = "5 %"\n'
+        'length_tolerance = "20 %"\n', 1)
+    path = tmp_path / "route-20.toml"
+    path.write_text(text, encoding="utf-8")
+    design = load_design(path)
+    bus = design.buses[0]
+    nominal = evaluate_bus(bus, design)
+    tables: dict = {}
+    ppb.prepare_table(bus, design, nominal, tables, 1.0, 1e-6, 20_000)
+    table = tables[bus.id]
+    assert isinstance(table, pptable.LineTable), table
+    length = next(i for i, ax in enumerate(table.axes) if ax.kind == "length")
+    g = table._grids[length]
+    jump = [c for c in table._rough["cipo"][length][1] if g[c] < 1.2 and g[c + 1] > 1.19]
+    assert jump
+    # boards around the jump (in its cell, and either side of it) and some drawn
+    n = 12
+    factors = _factors(bus, n, seed=2)
+    keys = [k for k in factors if k[0] == "line-length"]
+    for b, x in enumerate((0.5 * (g[jump[0]] + g[jump[0] + 1]), 1.18, 1.2)):
+        for k in keys:
+            factors[k][b] = x
+    by_table = ppb.build(bus, design, factors, n, nominal=nominal, tables=tables)
+    by_engine = ppb.build(bus, design, factors, n, nominal=nominal)
+    assert by_table.engine_why["rough"] >= 1 and by_table.engine_boards < n
+    ringing = next(i for i, nm in enumerate(by_engine.names)
+                   if nm["name"] == "shared cipo ringing U1")
+    assert set(by_engine.items[ringing].status) == {0, 1}  # pass and warn both drawn
+    for a, b in zip(by_table.items, by_engine.items, strict=True):
+        np.testing.assert_array_equal(a.status, b.status)
+        if b.margin is not None:
+            ok = np.isfinite(b.margin)
+            np.testing.assert_allclose(a.margin[ok], b.margin[ok], rtol=0,
+                                       atol=pptable.MARGIN_TOL)
+
+
+def test_a_status_that_changes_makes_its_cell_rough_on_any_axis():
+    # a status takes a few values: any change across a cell is a step (common practice,
+    # no source), found on a three-node axis too, where a cubic has too few nodes
+    g = np.array([0.95, 1.0, 1.05])
+    smooth = np.array([[0.1, 0.2, 0.3]])
+    _, now, _ = tablegrid.rough_spans(g, smooth, 2e-3, [], np.array([[0, 0, 1], [0, 0, 0]]))
+    assert list(now) == [1]
+    _, now, _ = tablegrid.rough_spans(g, smooth, 2e-3, [], np.zeros((2, 3)))
+    assert not now.size

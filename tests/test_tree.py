@@ -178,3 +178,19 @@ def test_choose_step_divides_the_shortest_delay():
     assert dt <= 0.1e-9 / 20
     assert wf.choose_step([], 2e-9) == pytest.approx(1e-10, rel=1e-12)
     assert wf.choose_step([], 0.0, tau=4e-9) == pytest.approx(2e-10, rel=1e-12)
+
+
+@pytest.mark.parametrize(("kwargs", "names", "shapes"), [
+    ({"vdd": np.ones(3), "node_caps": [0.0, np.zeros(4)]}, ("vdd", "node_caps[1]"),
+     ("(3,)", "(4,)")),
+    ({"r_source": np.full((2, 3), 50.0), "sections": [(0, 1, np.full(2, 50.0), 1e-9)]},
+     ("r_source", "sections[0].z0"), ("(2, 3)", "(2,)")),
+])
+def test_a_batch_that_does_not_broadcast_names_its_arguments(kwargs, names, shapes):
+    args = {"vdd": 1.0, "t_ramp": 0.0, "r_source": 50.0,
+            "sections": [(0, 1, 50.0, 1e-9)], "node_caps": [0.0, 0.0], **kwargs}
+    with pytest.raises(InputError) as info:
+        wf.tree_response(grid(5e-9), args["vdd"], args["t_ramp"], args["r_source"],
+                         args["sections"], args["node_caps"])
+    for text in (*names, *shapes):
+        assert text in info.value.message

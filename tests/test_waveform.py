@@ -256,6 +256,21 @@ def test_input_errors():
         wf.distributed_response(t, 1.0, 0.0, 50.0, [(50.0, 3.5e-12)], 1e-12)
 
 
+def test_a_batch_that_does_not_broadcast_names_its_arguments():
+    t = grid(5e-9)
+    with pytest.raises(InputError) as info:
+        wf.lumped_response(t, np.ones(3), 0.0, 50.0, np.full(4, 1e-12))
+    assert all(s in info.value.message for s in ("vdd", "c_load", "(3,)", "(4,)"))
+    with pytest.raises(InputError) as info:
+        wf.distributed_response(t, 1.0, 0.0, 50.0, [(50.0, 1e-9)], np.full(2, 1e-12),
+                                np.full(3, 1e-12))
+    assert all(s in info.value.message for s in ("c_load", "c_mid", "(2,)", "(3,)"))
+    with pytest.raises(InputError) as info:
+        wf.distributed_response(t, np.ones(2), 0.0, 50.0,
+                                [(50.0, 1e-9), (np.full(5, 50.0), 1e-9)], 0.0)
+    assert all(s in info.value.message for s in ("vdd", "sections[1].z0", "(2,)", "(5,)"))
+
+
 # --------------------------------------------------------------------------- ngspice
 
 

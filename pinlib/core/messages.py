@@ -289,6 +289,8 @@ Z0_NOT_POSITIVE = "characteristic impedance must be positive"
 SECTION_DELAY_FORM = "section delay must be one number >= 0"
 TIME_STEP_TOO_COARSE = "time step too coarse for a line section"
 MID_JUNCTION_OUT_OF_RANGE = "junction for c_mid out of range"
+BATCH_SHAPES_CLASH = (
+    "{first} of shape {a} and {second} of shape {b} do not broadcast into one batch")
 # pinlib/physics/waveform/tree.py
 TREE_SECTION_FORM = "a section of a tree must be (a, b, z0, td): two nodes, impedance, delay"
 NODE_INDEX_OUT_OF_RANGE = "not a node of the tree"

@@ -15,7 +15,8 @@ its time grid from each variant's own time constants and delays, so the waveform
 solvers cannot share one batched solve across variants.  A large batch is evaluated
 from tables of the engine over the tolerance box (:mod:`pinlib.engines.pptable`), built
 once per run, verified against the engine, with the engine taking every board outside
-the box or close to failing.
+the box, in a cell of the table a line's results jump or bend across, or close to
+failing (:data:`WHY`; a run's notes count each).
 
 A device's ``capacitance_tolerance`` scales the capacitance of every pin it has on
 the bus (``Device.capacitance_factor``); the stored part is not changed.
@@ -52,7 +53,18 @@ __all__ = [
     "flat_checks",
     "number_or_nan",
     "build",
+    "engine_note",
+    "WHY",
 ]
+
+
+#: Why a board in a run with a table went to the engine, in the order a board's reason is
+#: taken: beyond the box the table covers, in a cell of the table across which a line's
+#: results jump or bend (still rough at the finest width), or an interpolated margin
+#: within three times the table's error of failing.
+WHY = {"outside": "outside the tolerance box",
+       "rough": "in a table cell a line's results jump or bend across",
+       "close": "close to failing"}
 
 
 @dataclass
@@ -72,6 +84,10 @@ class PpBatch:
         How the variants were evaluated (engine, or tables and their verification). [1]
     engine_boards : int
         Variants evaluated by the engine itself. [1]
+    engine_why : dict
+        Where a table stood in for the engine, the variants it left to the engine by
+        reason (:data:`WHY`; each variant counted once, under the first reason that
+        applies); empty without a table (every variant the engine's). [1]
     """
 
     n: int
@@ -79,6 +95,7 @@ class PpBatch:
     items: list
     notes: list = field(default_factory=list)
     engine_boards: int = 0
+    engine_why: dict = field(default_factory=dict)
 
     def checks(self):
         """Every check: (None, BatchCheck), like the open-drain
@@ -136,6 +153,7 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
              if keys else np.zeros((n, 0)))
     notes: list[str] = []
     todo = np.ones(n, dtype=bool)  # the variants the engine evaluates
+    why: dict[str, int] = {}       # and why, where a table stands in for the engine
     grid = _table(bus, design, chosen, tables, span, floor, n, progress) if keys else None
     if grid is not None:
         inside = grid.inside(factors, n)
@@ -149,16 +167,21 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
                                 [nm["name"] for nm in names])
             margin[inside], value[inside] = got["margin"], got["value"]
             limit[inside], status[inside] = got["limit"], got["status"]
-        todo = ~inside
         # a line's factor in a cell its results jump or bend across: the engine's
-        todo[inside] |= grid.declined({k: np.asarray(f, dtype=float).reshape(n)[inside]
+        rough = np.zeros(n, dtype=bool)
+        rough[inside] = grid.declined({k: np.asarray(f, dtype=float).reshape(n)[inside]
                                        for k, f in factors.items()}, int(inside.sum()))
         # A board whose interpolated margin is within the table's error of failing goes
         # to the engine: its pass or fail must not rest on the interpolation.
         band = 3.0 * grid.max_error + 1e-12
         moving = grid.interpolated([nm["name"] for nm in names])
+        close = np.zeros(n, dtype=bool)
         if moving.any():
-            todo |= np.any(np.abs(margin[:, moving]) < band, axis=1)
+            close = np.any(np.abs(margin[:, moving]) < band, axis=1)
+        todo = ~inside | rough | close
+        why = {"outside": int(np.count_nonzero(~inside)),
+               "rough": int(np.count_nonzero(rough & inside)),
+               "close": int(np.count_nonzero(close & inside & ~rough))}
         notes.append(_table_note(bus, grid))
     elif tables is not None and isinstance(tables.get(bus.id), pptable.Refusal):
         notes.append(f"bus {bus.id}: every board evaluated by the engine (no table over its "
@@ -188,7 +211,15 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
             ec.id, "", nm["signal"], value[:, j] if has_value else None,
             limit[:, j] if has_value else None, margin[:, j] if has_margin else None,
             status[:, j], ec.unit))
-    return PpBatch(n, names, items, notes, int(where.size))
+    return PpBatch(n, names, items, notes, int(where.size), why)
+
+
+def engine_note(bus_id: str, why: dict) -> str:
+    """The note of a run that says how many of a bus's boards the engine evaluated
+    beside its table, and why (``why``: counts by the keys of :data:`WHY`)."""
+    total = sum(why.values())
+    parts = ", ".join(f"{why[k]} {text}" for k, text in WHY.items() if why.get(k))
+    return f"bus {bus_id}: {total} boards evaluated by the engine ({parts})"
 
 
 def prepare_table(bus: Bus, design, nominal, tables: dict, span: float, floor: float,
@@ -206,7 +237,15 @@ def prepare_table(bus: Bus, design, nominal, tables: dict, span: float, floor: f
 
 def _table(bus, design, chosen, tables, span, floor, distinct, progress):
     """The bus's table from ``tables``, built on first use when it costs fewer engine
-    evaluations than the distinct variants; None when there is none."""
+    evaluations than the distinct variants; None when there is none.
+
+    A table's first grid and its verification boards are what it costs at least; a
+    routed line's rough cells then add nodes (:mod:`pinlib.engines.pptable`: the route
+    of tests/data/spi-route.toml took 66 nodes where its first grid has 21).  The table
+    is given the variants less one as its budget, so that it never takes as many engine
+    evaluations as the variants would: a rough cell it cannot afford to bisect further
+    is declined, and its boards go to the engine with the rest of the run's.
+    """
     if tables is None:
         return None
     if bus.id in tables:
@@ -216,7 +255,8 @@ def _table(bus, design, chosen, tables, span, floor, distinct, progress):
     cost = math.prod(pptable.NODES[ax.kind] for ax in axes) + pptable.VERIFY
     if cost >= distinct:
         return None  # cheaper to run the engine on each variant (and not remembered)
-    got = tables[bus.id] = pptable.tabulate(bus, design, axes, chosen, progress=progress)
+    got = tables[bus.id] = pptable.tabulate(bus, design, axes, chosen, progress=progress,
+                                            budget=distinct - 1)
     return got if isinstance(got, pptable.LineTable) else None
 
 

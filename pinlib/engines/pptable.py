@@ -21,15 +21,21 @@ bus's timing checks are sums of flights from several lines
    :func:`pinlib.model.result.check_min`; statuses come from the margins by the engine's
    rule (:func:`pinlib.model.result.status_codes`).  A device's ``supply-range`` check
    is the engine's rule at the board's own rail (nothing interpolated).
-4. **Rough cells.**  A line's margin can jump or bend across a cell (on a routed line a
-   stub's receiver sees a stepped edge, whose 10-90 % time jumps as a step's plateau
-   crosses 90 %): :mod:`pinlib.engines.tablegrid` finds such cells from the nodes, they
+4. **Rough cells.**  A line's margin or flight can jump or bend across a cell (on a
+   routed line a stub's receiver sees a stepped edge, whose 10-90 % time jumps as a
+   step's plateau crosses 90 %, and whose first crossing of a threshold jumps from one
+   step to the next; a flight is judged in units of the budget's smallest
+   requirement, what a flight's error moves a timing margin by):
+   :mod:`pinlib.engines.tablegrid` finds such cells from the nodes, they
    are bisected (up to :data:`REFINE` times, the nodes the engine already gave kept),
    no other board's stencil spans them, and a board in a cell still rough at the finest
-   width is left to the engine (:meth:`LineTable.declined`).
+   width is left to the engine (:meth:`LineTable.declined`).  A yes/no check of a line
+   (ringing) whose status moves takes its nodes' status, a cell across which that
+   status changes being rough on any axis.
 5. **Verification.**  The table is refused (the caller then runs the engine on every
-   board) when the nodes do not all give the same checks, when a check's status does
-   not follow from its margin, or when, at :data:`VERIFY` boards drawn inside the box,
+   board) when the nodes do not all give the same checks, when the status of a check
+   with a margin does not follow from it, or when, at :data:`VERIFY` boards drawn
+   inside the box,
    a margin interpolated from the table differs from the engine's by more than
    :data:`MARGIN_TOL`.  The largest difference found is reported, and the caller runs
    the engine on every board with an interpolated margin within three times that
@@ -49,8 +55,8 @@ from dataclasses import field as _field
 
 import numpy as np
 
+from pinlib.engines import ppnodes
 from pinlib.engines import ppvariant as ppv
-from pinlib.engines import pushpull as pp
 from pinlib.engines.opendrain.rules import supply_margin
 from pinlib.engines.ppvariant import number_or_nan as _num
 from pinlib.engines.pushline import Flight
@@ -81,8 +87,6 @@ class Refusal:
         return self.reason
 
 
-class _Refused(Exception):
-    """Raised while a table is built; :func:`tabulate` returns it as a :class:`Refusal`."""
 #: More engine evaluations than this and the table is not built (nor refined further).
 MAX_NODES = 400
 #: Bisections of a rough cell at most; the largest miss of a one-sided cubic counted as
@@ -159,7 +163,7 @@ class LineTable:
     max_error: float
     _grids: list
     _lines: dict          # signal -> (labels, table of shape grid + (labels,))
-    _checks: list         # per check: how to fill it (see _plan)
+    _checks: list         # per check: how to fill it (see ppnodes.plan)
     _analysis: object     # the nominal SpiAnalysis (mode, controller, bridges), or None
     _flight_slots: list   # per peripheral: {field: (signal, label index base)}
     _warn: float          # the design's warning margin
@@ -241,9 +245,11 @@ class LineTable:
             elif kind == "line":
                 _, sig, slots, margin_rule, code = plan
                 vals = got[sig]
-                for arr, slot in zip((margin, value, limit), slots, strict=True):
+                for arr, slot in zip((margin, value, limit), slots[:3], strict=True):
                     arr[j] = vals[:, slot]
-                if margin_rule == 1:   # a rule of thumb: its status from its margin, at most warn
+                if margin_rule == "nodes":  # its nodes' status (equal across the cell)
+                    status[j] = np.clip(np.rint(vals[:, slots[3]]), 0, 2)
+                elif margin_rule == 1:   # a rule of thumb: its status from its margin, at most warn
                     status[j] = np.minimum(status_codes(margin[j], self._warn), 1)
                 elif margin_rule:
                     by_margin.append(j)
@@ -317,48 +323,9 @@ class LineTable:
         return budget_terms(sa.mode, sa.controller, periphs, sa.t_bridge)
 
 
-def _evaluate(bus: Bus, design: Design):
-    """The engine's result of a (varied) bus, and its SPI analysis (None for GPIO)."""
-    if bus.protocol == "spi":
-        from pinlib.engines.spi import spi_analysis
-
-        sa = spi_analysis(bus, design)
-        return pp.evaluate_board(bus, design, analysis=sa), sa
-    return pp.evaluate_board(bus, design), None
-
-
-_FIELDS = ("copi", "cs", "cipo")
-
-
-def _record(bus: Bus, res, sa) -> tuple[dict, list]:
-    """Per line, the labelled numbers of one evaluation; and each check's record."""
-    per_line: dict[str, list] = {}
-    checks = []
-    for nm, (sig, c) in zip(ppv.check_names(bus, res), ppv.flat_checks(res), strict=True):
-        checks.append((nm["name"], sig, c))
-        if sig is not None:
-            per_line.setdefault(sig, []).extend(
-                [("check", nm["name"], "margin", _num(c.margin)),
-                 ("check", nm["name"], "value", _num(c.value)),
-                 ("check", nm["name"], "limit", _num(c.limit))])
-    if sa is not None:
-        for i, p in enumerate(sa.peripherals):
-            for e in ("rise", "fall"):
-                f = p.sclk[e]
-                per_line.setdefault("sclk", []).extend(
-                    [("flight", i, f"sclk-{e}", "early", f.early),
-                     ("flight", i, f"sclk-{e}", "late", f.late)])
-            for field in _FIELDS:
-                f = getattr(p, field)
-                if f is not None:
-                    per_line.setdefault(field, []).extend(
-                        [("flight", i, field, "early", f.early),
-                         ("flight", i, field, "late", f.late)])
-    return per_line, checks
-
-
 def tabulate(bus: Bus, design: Design, axes: list[Axis],
-             resistors: dict, *, progress=None) -> LineTable | Refusal:
+             resistors: dict, *, progress=None,
+             budget: int | None = None) -> LineTable | Refusal:
     """Build and verify the table of a push-pull bus, or say why it cannot stand in for
     the engine (see the module notes).
 
@@ -374,6 +341,11 @@ def tabulate(bus: Bus, design: Design, axes: list[Axis],
         Series resistors fixed for "auto" lines (``ppvariant.chosen_resistors``). [Ω]
     progress : bool, callable or None, optional
         A bar over the engine evaluations (see :func:`pinlib.core.progress.progress_bar`). [1]
+    budget : int, optional
+        The most engine evaluations the table may take, nodes and verification boards
+        together: rough cells are bisected only while the finer grid stays within it
+        (cells left wider are declined all the same).  :data:`MAX_NODES` nodes at most
+        in any case. [1]
     """
     from pinlib.core.progress import progress_bar
 
@@ -385,17 +357,18 @@ def tabulate(bus: Bus, design: Design, axes: list[Axis],
                        unit="engine run", enabled=progress)
     with bar:
         try:
-            return _tabulate(bus, design, axes, resistors, grids, shape, bar)
-        except _Refused as refused:
+            return _tabulate(bus, design, axes, resistors, grids, shape, bar, budget)
+        except ppnodes.Refused as refused:
             return Refusal(str(refused))
 
 
-def _tabulate(bus, design, axes, resistors, grids, shape, bar) -> LineTable:
+def _tabulate(bus, design, axes, resistors, grids, shape, bar, budget) -> LineTable:
     done: dict = {}  # engine evaluations by node (coordinates): kept as the grid refines
+    most = MAX_NODES if budget is None else min(MAX_NODES, budget - VERIFY)
     table = _assemble(bus, design, axes, resistors, grids, done, bar, {})
     for _ in range(REFINE):
         finer = _refined(table)
-        if finer is None or math.prod(g.size for g in finer) > MAX_NODES:
+        if finer is None or math.prod(g.size for g in finer) > most:
             break
         bar.grow(math.prod(g.size for g in finer) - math.prod(g.size for g in grids))
         grids = finer
@@ -417,30 +390,30 @@ def _assemble(bus, design, axes, resistors, grids, done, bar, spans) -> LineTabl
         node = tuple(float(g[i]) for g, i in zip(grids, index, strict=True))
         if node not in done:
             factor = {key: x for ax, x in zip(axes, node, strict=True) for key in ax.keys}
-            res, sa = _evaluate(ppv.vary_bus(bus, factor.get, resistors), design)
+            res, sa = ppnodes.evaluate(ppv.vary_bus(bus, factor.get, resistors), design)
             # only what the table reads (a result holds its waveforms); the analysis of
             # the first node (the box's low corner, first on every grid) is the table's
             done[node] = (ppv.check_names(bus, res), sa if not done else None,
-                          *_record(bus, res, sa))
+                          *ppnodes.record(bus, res, sa))
             bar.update(1)
         node_names, sa, per_line, checks = done[node]
         if order is None:  # the first node names the checks (a varied board has no
             names = node_names  # "auto" left: no series-termination check)
             order = [nm["name"] for nm in names]
         if [c[0] for c in checks] != order:
-            raise _Refused("the checks differ across the tolerance box")
+            raise ppnodes.Refused("the checks differ across the tolerance box")
         here = {sig: [item[:-1] for item in items] for sig, items in per_line.items()}
         if labels is None:
             labels = here
             values = {sig: np.empty(shape + (len(items),)) for sig, items in here.items()}
             first_sa = sa
         elif here != labels:
-            raise _Refused("the lines' flights differ across the tolerance box")
+            raise ppnodes.Refused("the lines' flights differ across the tolerance box")
         for sig, items in per_line.items():
             values[sig][index] = [item[-1] for item in items]
         node_checks.append(checks)
-    plans = _plan(names, node_checks, labels or {}, values, first_sa, bus, design)
-    slots = _flight_slots(first_sa, labels or {})
+    plans = ppnodes.plan(names, node_checks, labels or {}, values, first_sa, bus, design)
+    slots = ppnodes.flight_slots(first_sa, labels or {})
     table = LineTable(axes, names, len(node_checks), 0.0, grids,
                       {sig: (labels[sig], values[sig]) for sig in (labels or {})},
                       plans, first_sa, slots, design.warn_margin)
@@ -449,17 +422,47 @@ def _assemble(bus, design, axes, resistors, grids, done, bar, spans) -> LineTabl
 
 
 def _rough(table: LineTable, before: dict) -> None:
-    """Each line's rough cells along each axis, where one of its interpolated margins is
-    not smooth (:func:`pinlib.engines.tablegrid.rough_spans`, :data:`ROUGH_TOL`).  Sets
-    ``_rough`` and ``_spans``."""
-    for sig, (_, values) in table._lines.items():
-        cols = [p[2][0] for p in table._checks if p[0] == "line" and p[1] == sig]
-        got = [rough_spans(g, np.moveaxis(values[..., cols], a, -1).reshape(-1, g.size)
-                           if cols else np.zeros((0, g.size)), ROUGH_TOL,
-                           before.get(sig, [[]] * len(table._grids))[a])
-               for a, g in enumerate(table._grids)]
+    """Each line's rough cells along each axis, where one of its interpolated margins or
+    one of the flights it gives the timing budget is not smooth
+    (:func:`pinlib.engines.tablegrid.rough_spans`, :data:`ROUGH_TOL`).  Sets ``_rough``
+    and ``_spans``.
+
+    A flight enters a timing term's available time with a coefficient of one, so a
+    flight missed by ``d`` moves that term's margin by ``d / |required|``: flights are
+    judged in units of the smallest requirement of the budget, against the same
+    tolerance as the margins."""
+    scale = _flight_scale(table)
+    for sig, (labels, values) in table._lines.items():
+        mine = [p for p in table._checks if p[0] == "line" and p[1] == sig]
+        cols = [p[2][0] for p in mine]
+        # a yes/no check whose status moves: a cell where its status changes is rough
+        steps = [p[2][3] for p in mine if p[3] == "nodes"]
+        flights = [i for i, label in enumerate(labels) if label[0] == "flight"]
+        got = []
+        for a, g in enumerate(table._grids):
+            rows = np.concatenate([_along(values[..., cols], a),
+                                   _along(values[..., flights], a) / scale])
+            got.append(rough_spans(g, rows, ROUGH_TOL,
+                                   before.get(sig, [[]] * len(table._grids))[a],
+                                   _along(values[..., steps], a)))
         table._rough[sig] = [(avoided, now) for avoided, now, _ in got]
         table._spans[sig] = [span for _, _, span in got]
+
+
+def _along(values: np.ndarray, axis: int) -> np.ndarray:
+    """``values`` (grid shape + (q,)) as rows along one axis, shape ``(rows, nodes)``."""
+    return np.moveaxis(values, axis, -1).reshape(-1, values.shape[axis])
+
+
+def _flight_scale(table: LineTable) -> float:
+    """The time that one unit of a timing term's margin is: the smallest requirement of
+    the budget at the table's first node (the clock period where none is recorded). [s]"""
+    sa = table._analysis
+    if sa is None:
+        return 1.0  # no budget: a line of a GPIO bus has no flights
+    required = [abs(float(t.required)) for t in sa.terms if float(t.required) != 0.0]
+    periods = [p[2] for p in table._checks if p[0] == "term"]
+    return min(required) if required else (periods[0] if periods else 1.0)
 
 
 def _refined(table: LineTable) -> list | None:
@@ -477,85 +480,6 @@ def _refined(table: LineTable) -> list | None:
     return out if more else None
 
 
-def _plan(names, node_checks, labels, values, sa, bus, design) -> list:
-    """How each check is filled: a constant, a line's interpolated numbers, or a term."""
-    warn = design.warn_margin
-    plans = []
-    term_k = 0
-    n_terms = len(sa.terms) if sa is not None else 0
-    for j, nm in enumerate(names):
-        at_nodes = [checks[j][2] for checks in node_checks]
-        sig = node_checks[0][j][1]
-        codes = {STATUS_CODES[c.status] for c in at_nodes}
-        mgs = np.array([_num(c.margin) for c in at_nodes])
-        c0 = at_nodes[0]
-        if sig is None:
-            # evaluate_board lists the budget's terms first, in order, then the f_max and
-            # supply-range checks
-            if term_k < n_terms and sa.terms[term_k].id == c0.id:
-                plans.append(("term", term_k, 1.0 / float(bus.clock)))
-                term_k += 1
-                continue
-            if c0.id == "supply-range":
-                plans.append(_supply_plan(bus, c0.subject))
-                continue
-            if len(codes) != 1 or len({_num(c.value) for c in at_nodes}) > 1:
-                raise _Refused(f"{nm['name']}: a bus check that moves and is not a "
-                               "timing term")
-            plans.append(("const", _num(c0.margin), _num(c0.value), _num(c0.limit),
-                          codes.pop()))
-            continue
-        base = labels[sig].index(("check", nm["name"], "margin"))
-        slots = []
-        for off in range(3):
-            col = values[sig][..., base + off]
-            finite = np.isfinite(col)
-            if finite.all():
-                slots.append(base + off)
-            elif len(np.unique(col)) == 1 or np.isnan(col).all():
-                slots.append(base + off)   # a constant (inf or NaN) interpolates to itself
-            else:
-                raise _Refused(f"{nm['name']}: not finite at every node")
-        has_margin = c0.margin is not None
-        # a rule of thumb warns where its margin would fail (model.result.rule_of_thumb)
-        cap = 1 if c0.details.get("rule_of_thumb") else 2
-        by_margin = has_margin and all(STATUS_CODES[c.status] == min(int(status_codes(
-            np.array([_num(c.margin)]), warn)[0]), cap) for c in at_nodes)
-        if not by_margin and len(codes) != 1:
-            raise _Refused(f"{nm['name']}: its status moves, but not with its margin")
-        if has_margin and not np.isfinite(mgs).all() and len(np.unique(mgs)) != 1:
-            raise _Refused(f"{nm['name']}: a margin not finite at every node")
-        plans.append(("line", sig, tuple(slots), by_margin and cap, min(codes)))
-    if term_k != n_terms:
-        raise _Refused("the budget's terms are not all checks")
-    return plans
-
-
-def _supply_plan(bus: Bus, ref: str) -> tuple:
-    """A device's supply-range check: its rail's key and value, and its part's range."""
-    for d, v, lo, hi, _ in pp.supply_rows(bus):
-        if d.ref == ref:
-            vtol = bus.supply_tolerance or 0.0
-            return ("supply", ppv.rail_key(v, vtol) if vtol > 0 else None, v, lo, hi)
-    raise AssertionError(ref)  # the engine made the check from these rows
-
-
-def _flight_slots(sa, labels) -> list:
-    if sa is None:
-        return []
-    out = []
-    for i, _p in enumerate(sa.peripherals):
-        slots = {}
-        if "sclk" in labels and ("flight", i, "sclk-rise", "early") in labels["sclk"]:
-            slots["sclk"] = {e: labels["sclk"].index(("flight", i, f"sclk-{e}", "early"))
-                             for e in ("rise", "fall")}
-        for field in _FIELDS:
-            if field in labels and ("flight", i, field, "early") in labels[field]:
-                slots[field] = (field, labels[field].index(("flight", i, field, "early")))
-        out.append(slots)
-    return out
-
-
 def _verify(table: LineTable, bus: Bus, design: Design, resistors: dict,
             bar) -> LineTable:
     """Check the table at VERIFY boards drawn in the box (fixed seed) against the engine."""
@@ -570,27 +494,27 @@ def _verify(table: LineTable, bus: Bus, design: Design, resistors: dict,
         for k in keys:
             draws[k][off] = rng.uniform(*span[k], off.size)
     else:
-        raise _Refused("the table declines almost every board")
+        raise ppnodes.Refused("the table declines almost every board")
     got = table.evaluate(draws, VERIFY)
     worst = 0.0
     for b in range(VERIFY):
-        res, _ = _evaluate(ppv.vary_bus(bus, {k: float(v[b]) for k, v in draws.items()}.get,
-                                        resistors), design)
+        at = {k: float(v[b]) for k, v in draws.items()}
+        res, _ = ppnodes.evaluate(ppv.vary_bus(bus, at.get, resistors), design)
         bar.update(1)
         engine = [c for _, c in ppv.flat_checks(res)]
         if [nm["name"] for nm in ppv.check_names(bus, res)] != [nm["name"] for nm in table.names]:
-            raise _Refused("a verification board has other checks")
+            raise ppnodes.Refused("a verification board has other checks")
         for j, c in enumerate(engine):
             if c.margin is None:
                 if STATUS_CODES[c.status] != got["status"][b, j]:
-                    raise _Refused(f"{table.names[j]['name']}: another status at a "
+                    raise ppnodes.Refused(f"{table.names[j]['name']}: another status at a "
                                    "verification board")
                 continue
             mine, theirs = got["margin"][b, j], _num(c.margin)
             if math.isfinite(theirs) or math.isfinite(mine):
                 diff = abs(mine - theirs)
                 if not diff <= MARGIN_TOL:
-                    raise _Refused(f"{table.names[j]['name']}: interpolated margin "
+                    raise ppnodes.Refused(f"{table.names[j]['name']}: interpolated margin "
                                    f"{mine:.4g} against the engine's {theirs:.4g} at a "
                                    "verification board")
                 worst = max(worst, diff)

@@ -35,17 +35,22 @@ __all__ = ["STENCIL", "rough_cells", "rough_spans", "stencil", "interpolate"]
 STENCIL = 4
 
 
-def rough_spans(g: np.ndarray, values: np.ndarray, tol: float,
-                before: list) -> tuple[np.ndarray, np.ndarray, list]:
+def rough_spans(g: np.ndarray, values: np.ndarray, tol: float, before: list,
+                steps: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray, list]:
     """The rough cells of an axis that a caller bisects, kept across its bisections.
 
     Returns the cells no other point's stencil may span, the cells rough now (the
     caller bisects them while wider than it allows, then declines their points), and
     the spans ``(lo, hi)`` to pass as ``before`` on the next, finer grid: a span rough
     on a coarser grid none of whose cells is rough now (a bend the finer grid follows
-    within ``tol``) stays out of other points' stencils.
+    within ``tol``) stays out of other points' stencils.  ``steps`` (shape ``(rows,
+    g.size)``) holds quantities that take a few values (a status): a cell across which
+    one of them changes at all is rough, however few nodes the axis has.
     """
-    now = np.flatnonzero(rough_cells(g, values, tol))
+    rough = rough_cells(g, values, tol)
+    if steps is not None and steps.size:
+        rough |= np.any(np.diff(steps, axis=1) != 0, axis=0)
+    now = np.flatnonzero(rough)
     span = [(float(g[c]), float(g[c + 1])) for c in now]
     span += [(lo, hi) for lo, hi in before if not any(lo <= x < hi for x, _ in span)]
     avoided = [c for c in range(g.size - 1)

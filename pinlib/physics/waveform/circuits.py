@@ -15,7 +15,7 @@ import numpy as np
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.physics.rc import ramp_rc_response
-from pinlib.physics.waveform.march import _non_negative
+from pinlib.physics.waveform.march import _batch_shape, _non_negative
 from pinlib.physics.waveform.metrics import _edge_sign
 from pinlib.physics.waveform.tree import _tree
 
@@ -81,8 +81,11 @@ def lumped_response(t, vdd, t_ramp, r_source, c_load, *, edge="rise"):
     """
     sign = _edge_sign(edge)
     t = np.asarray(t, dtype=float)
-    vdd, t_ramp, r_source, c_load = np.broadcast_arrays(
-        *(np.asarray(x, dtype=float) for x in (vdd, t_ramp, r_source, c_load)))
+    named = list(zip(("vdd", "t_ramp", "r_source", "c_load"),
+                     (np.asarray(x, dtype=float) for x in (vdd, t_ramp, r_source, c_load)),
+                     strict=True))
+    _batch_shape(named)
+    vdd, t_ramp, r_source, c_load = np.broadcast_arrays(*(a for _, a in named))
     if not np.all(r_source >= 0.0) or not np.all(c_load >= 0.0):
         raise InputError(M.NEGATIVE_SOURCE_OR_LOAD,
                          field="r_source, c_load", value=(r_source, c_load),
@@ -202,9 +205,14 @@ def distributed_response(t, vdd, t_ramp, r_source, sections, c_load, c_mid=None,
         if value is not None:
             _non_negative(name, np.asarray(value, dtype=float), "[F]")
     caps = [0.0] * (len(pairs) + 1)
-    caps[-1] = c_load
+    names = [f"c at junction {k}" for k in range(len(pairs) + 1)]
+    caps[-1], names[-1] = c_load, "c_load"
     if c_mid is not None:
+        if mid_junction == len(pairs):  # both at the far end: their sum
+            _batch_shape([("c_load", np.asarray(c_load, dtype=float)),
+                          ("c_mid", np.asarray(c_mid, dtype=float))])
         caps[mid_junction] = caps[mid_junction] + np.asarray(c_mid, dtype=float)
+        names[mid_junction] = "c_load + c_mid" if mid_junction == len(pairs) else "c_mid"
     chain = [(k, k + 1, z0, td) for k, (z0, td) in enumerate(pairs)]
-    w = _tree(t, vdd, t_ramp, r_source, chain, caps, 0, edge, stacklevel=4)
+    w = _tree(t, vdd, t_ramp, r_source, chain, caps, 0, edge, stacklevel=4, cap_names=names)
     return Waveform(w.t, w.v[..., -1, :], w.v if all_junctions else None)

@@ -134,6 +134,27 @@ def _non_negative(name: str, a: np.ndarray, unit: str) -> None:
                          value=a, expected=f"values >= 0 {unit}")
 
 
+def _batch_shape(named: list[tuple[str, np.ndarray]]) -> tuple:
+    """The batch: the broadcast shape of the arrays ``(name, array)``; an InputError
+    naming two of them whose shapes do not broadcast together, and their shapes."""
+    try:
+        return np.broadcast_shapes(*(a.shape for _, a in named))
+    except ValueError:
+        pass
+    # shapes that broadcast pairwise broadcast together: some pair clashes
+    for i, (second, b) in enumerate(named):
+        for first, a in named[:i]:
+            try:
+                np.broadcast_shapes(a.shape, b.shape)
+            except ValueError:
+                raise InputError(M.BATCH_SHAPES_CLASH.format(
+                    first=first, a=a.shape, second=second, b=b.shape),
+                    field=f"{first}, {second}", value=(a.shape, b.shape),
+                    expected="scalars, or arrays whose shapes broadcast together "
+                             "(numpy's rules)") from None
+    raise AssertionError(named)  # unreachable: a clash is always between two shapes
+
+
 class Network(NamedTuple):
     """Lossless lines between nodes, as companion models; arrays over the batch ``B``.
 

@@ -42,6 +42,7 @@ import numpy as np
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.physics.waveform.march import (
+    _batch_shape,
     _check_line,
     _non_negative,
     _source_samples,
@@ -120,8 +121,9 @@ def tree_response(t, vdd, t_ramp, r_source, sections, node_caps, *, source=0,
 
 
 def _tree(t, vdd, t_ramp, r_source, sections, node_caps, source, edge, *,
-          stacklevel: int) -> TreeWaveform:
-    """:func:`tree_response`; a rounded delay is warned ``stacklevel`` frames up."""
+          stacklevel: int, cap_names: list[str] | None = None) -> TreeWaveform:
+    """:func:`tree_response`; a rounded delay is warned ``stacklevel`` frames up, and a
+    batch that does not broadcast names the node capacitances ``cap_names``."""
     sign = _edge_sign(edge)
     t, dt = _time_grid(t)
     n_t = t.size
@@ -134,7 +136,10 @@ def _tree(t, vdd, t_ramp, r_source, sections, node_caps, source, edge, *,
 
     arrays = [np.asarray(x, dtype=float) for x in (vdd, t_ramp, r_source, *caps_in)]
     arrays += [np.asarray(z, dtype=float) for _, _, z, _ in lines]
-    batch_shape = np.broadcast_shapes(*(x.shape for x in arrays))
+    names = ["vdd", "t_ramp", "r_source",
+             *(cap_names or (f"node_caps[{i}]" for i in range(n_nodes)))]
+    names += [f"sections[{k}].z0" for k, (_, _, steps) in enumerate(ends) if steps > 0]
+    batch_shape = _batch_shape(list(zip(names, arrays, strict=True)))
     flat = [np.broadcast_to(x, batch_shape).reshape(-1) for x in arrays]
     vdd_b, ramp_b, rs_b = flat[:3]
     caps_b, z_b = flat[3:3 + n_nodes], flat[3 + n_nodes:]

@@ -147,6 +147,7 @@ class _Run:
         self.span = 4.0 / 3.0 if design.distribution == "normal" else 1.0
         self.pp_notes: list[str] = []
         self.engine_boards: dict[str, int] = {}
+        self.engine_why: dict[str, dict] = {}  # beside a table: by reason (ppbatch.WHY)
         # the tables get a bar of their own; a caller's callback follows the boards only
         self.table_progress = False if callable(progress) and not isinstance(progress, bool) \
             else progress
@@ -200,6 +201,9 @@ class _Run:
                 if note not in self.pp_notes:
                     self.pp_notes.append(note)
             self.engine_boards[bus.id] = self.engine_boards.get(bus.id, 0) + bb.engine_boards
+            why = self.engine_why.setdefault(bus.id, {})
+            for k, count in bb.engine_why.items():
+                why[k] = why.get(k, 0) + count
             return bb
         if bus.id in self.collected:
             return ob.build(bus, self.design, scen, collected=self.collected[bus.id])
@@ -244,8 +248,7 @@ def _run_notes(run: _Run, n: int) -> list[str]:
     notes = _not_sampled(design) + run.pp_notes
     for bus_id, k in run.engine_boards.items():
         if k and isinstance(run.tables.get(bus_id), pptable.LineTable):
-            notes.append(f"bus {bus_id}: {k} boards evaluated by the engine (outside the "
-                         "tolerance box, or close to failing)")
+            notes.append(ppb.engine_note(bus_id, run.engine_why.get(bus_id, {})))
     if design.distribution == "normal":
         notes.append("normal draws: each tolerance is 3σ (a value may lie beyond it)")
     if n > SENSITIVITY_BOARDS and run.stores:
