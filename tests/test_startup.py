@@ -59,6 +59,34 @@ def test_the_program_returns_mains_code_and_freezes_what_is_left(monkeypatch):
     assert froze == [True]
 
 
+def test_the_program_runs_its_command_with_the_collector_off(monkeypatch):
+    import gc
+
+    seen = []
+    monkeypatch.setattr(cli, "main", lambda: seen.append(gc.isenabled()) or 0)
+    monkeypatch.setattr(gc, "freeze", lambda: None)
+    try:
+        assert cli.entry() == 0
+    finally:
+        gc.enable()  # this test process goes on
+    assert seen == [False]
+
+
+def test_main_leaves_the_collector_as_it_found_it(monkeypatch):
+    import gc
+
+    seen = []
+
+    def fake_main(argv):
+        seen.append(gc.isenabled())
+        return 0
+
+    monkeypatch.setattr(cli, "_main", fake_main)
+    assert gc.isenabled()
+    assert cli.main(["check", "x.toml"]) == 0
+    assert seen == [True] and gc.isenabled()
+
+
 def test_the_program_runs_blas_on_one_thread_unless_the_user_chose(monkeypatch):
     import sys
 
