@@ -3,12 +3,23 @@ user's own setting wins, and neither the process nor its children keep the chang
 
 from __future__ import annotations
 
+import gc
 import os
+
+import pytest
 
 from pinlib import cli
 from pinlib.cli import startup
 
 VAR = startup.PLUGINS_VARIABLE
+
+
+@pytest.fixture(autouse=True)
+def _collector_back_on():
+    """``cli.entry`` turns the garbage collector off for a process that ends with it;
+    this test process goes on."""
+    yield
+    gc.enable()
 
 
 def _seen_during_a_command(monkeypatch) -> list:
@@ -60,21 +71,14 @@ def test_the_program_returns_mains_code_and_freezes_what_is_left(monkeypatch):
 
 
 def test_the_program_runs_its_command_with_the_collector_off(monkeypatch):
-    import gc
-
     seen = []
     monkeypatch.setattr(cli, "main", lambda: seen.append(gc.isenabled()) or 0)
     monkeypatch.setattr(gc, "freeze", lambda: None)
-    try:
-        assert cli.entry() == 0
-    finally:
-        gc.enable()  # this test process goes on
+    assert cli.entry() == 0
     assert seen == [False]
 
 
 def test_main_leaves_the_collector_as_it_found_it(monkeypatch):
-    import gc
-
     seen = []
 
     def fake_main(argv):
