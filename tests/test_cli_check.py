@@ -156,6 +156,36 @@ def test_no_pandas_or_altair_on_the_check_path():
     assert proc.stdout.strip() == ""
 
 
+# Modules `pinlib check` of the demo has no use for: what draws, writes or imports parts,
+# the notebook stack and the studies it does not run (DEVELOPERS.md, house rules).
+NOT_ON_THE_CHECK_PATH = (
+    "pandas", "altair", "ipywidgets", "vl_convert", "scipy", "skrf", "tomlkit", "jinja2",
+    "IPython", "matplotlib", "tqdm", "pinlib.present.review", "pinlib.present.charts",
+    "pinlib.present.plotdata", "pinlib.present.widgets", "pinlib.studies.whatif",
+    "pinlib.studies.compare", "pinlib.studies.candidates", "pinlib.library.ibis",
+    "pinlib.library.record", "pinlib.library.jsonschema", "pinlib.model.designschema",
+)
+
+
+def test_check_imports_nothing_it_does_not_use():
+    code = (
+        "import sys, io, contextlib, runpy\n"
+        f"sys.argv = ['pinlib', 'check', {str(DEMO)!r}]\n"
+        "with contextlib.redirect_stdout(io.StringIO()):\n"
+        "    try:\n"
+        "        runpy.run_module('pinlib', run_name='__main__')\n"
+        "    except SystemExit:\n"
+        "        pass\n"
+        f"print(','.join(m for m in {NOT_ON_THE_CHECK_PATH!r} if m in sys.modules))\n"
+        "print('pinlib.engines.dispatch' in sys.modules)\n"
+    )
+    proc = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                          cwd=ROOT, timeout=60, check=True)
+    heavy, checked = proc.stdout.splitlines()
+    assert heavy == ""
+    assert checked == "True"  # the command ran (the list above is not vacuous)
+
+
 # Figure names that docs/formats/result.md and the push-pull issue promise for every routed line.
 LINE_FIGURES = {"load_capacitance", "trace_delay", "z0", "edge_rise_time", "edge_fall_time",
                 "series_resistor", "overshoot", "undershoot", "transmission_line", "model"}

@@ -230,3 +230,25 @@ def test_wave_step_longer_than_the_modal_delay_is_refused():
         coupled_waves(pair, 0.1, np.arange(0.0, 1e-9, 1e-12), EndLoads((0, 50), (0, 0)),
                       EndLoads((50, 50), (0, 0)))
     assert info.value.field == "near"
+
+
+@pytest.mark.parametrize("max_run", [256, 3])
+def test_waves_in_runs_equal_the_step_by_step_march(monkeypatch, max_run):
+    from pinlib.physics import coupledwave
+    from pinlib.physics.coupledwave import EndLoads, coupled_waves_batch
+
+    pair = from_modes(60.0, 40.0, 3.3, 2.9)
+    lengths = np.array([0.05, 0.08, 0.13])
+    dt = 0.05 * np.sqrt(2.9) / C0 / 4  # the shortest modal delay is 4 steps: a whole number
+    t = np.arange(0.0, 8e-9, dt)
+    ramp = np.clip(t / 1e-9, 0.0, 1.0) * 3.3
+    near = EndLoads((25.0, 2.2e3), (0.0, 5e-12), np.vstack([ramp, np.full_like(t, 3.3)]))
+    far = EndLoads((np.inf, 40.0), (4e-12, 8e-12), (0.0, 0.0))
+    monkeypatch.setattr(coupledwave, "_MAX_RUN", max_run)
+    runs = coupled_waves_batch(pair, lengths, t, near, far)
+    assert coupledwave._run_length(np.array([4.0, 7.5])) == min(3, max_run)
+    monkeypatch.setattr(coupledwave, "_run_length", lambda lag: 1)
+    steps = coupled_waves_batch(pair, lengths, t, near, far)
+    # derived from the method: a run is the same arithmetic as its steps, bit for bit
+    assert np.array_equal(runs.near, steps.near) and np.array_equal(runs.far, steps.far)
+    assert np.ptp(runs.far[:, 1]) > 1e-3  # the victim moves: the comparison has substance

@@ -3,12 +3,23 @@ user's own setting wins, and neither the process nor its children keep the chang
 
 from __future__ import annotations
 
+import gc
 import os
+
+import pytest
 
 from pinlib import cli
 from pinlib.cli import startup
 
 VAR = startup.PLUGINS_VARIABLE
+
+
+@pytest.fixture(autouse=True)
+def _collector_back_on():
+    """``cli.entry`` turns the garbage collector off for a process that ends with it;
+    this test process goes on."""
+    yield
+    gc.enable()
 
 
 def _seen_during_a_command(monkeypatch) -> list:
@@ -57,6 +68,27 @@ def test_the_program_returns_mains_code_and_freezes_what_is_left(monkeypatch):
     monkeypatch.setattr(gc, "freeze", lambda: froze.append(True))
     assert cli.entry() == 3
     assert froze == [True]
+
+
+def test_the_program_runs_its_command_with_the_collector_off(monkeypatch):
+    seen = []
+    monkeypatch.setattr(cli, "main", lambda: seen.append(gc.isenabled()) or 0)
+    monkeypatch.setattr(gc, "freeze", lambda: None)
+    assert cli.entry() == 0
+    assert seen == [False]
+
+
+def test_main_leaves_the_collector_as_it_found_it(monkeypatch):
+    seen = []
+
+    def fake_main(argv):
+        seen.append(gc.isenabled())
+        return 0
+
+    monkeypatch.setattr(cli, "_main", fake_main)
+    assert gc.isenabled()
+    assert cli.main(["check", "x.toml"]) == 0
+    assert seen == [True] and gc.isenabled()
 
 
 def test_the_program_runs_blas_on_one_thread_unless_the_user_chose(monkeypatch):

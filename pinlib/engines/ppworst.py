@@ -148,8 +148,9 @@ def at_worst_corners(bus: Bus, design: Design, nominal: BusResult,
     names = [nm["name"] for nm in check_names(bus, nominal)]
     index = {nm: j for j, nm in enumerate(names)}
     seen: dict[tuple, BusResult] = {}
+    rows: dict[tuple, dict[int, object]] = {}  # each board's checks by the nominal's index
 
-    def board(u) -> BusResult:
+    def board(u) -> tuple:
         key = tuple(float(x) for x in u)
         if key not in seen:
             if not any(key):
@@ -157,21 +158,30 @@ def at_worst_corners(bus: Bus, design: Design, nominal: BusResult,
             else:
                 f = {s[-1]: 1.0 + s[3] * x for s, x in zip(specs, key, strict=True)}
                 seen[key] = evaluate(vary_bus(bus, f.get, chosen), design)
-        return seen[key]
+            rows[key] = _by_index(bus, seen[key], index)
+        return key
 
     def margins(u: np.ndarray) -> np.ndarray:
         out = np.full((len(u), len(names)), np.inf)
         for r, row in enumerate(u):
-            res = board(row)
-            for nm, (_, c) in zip(check_names(bus, res), flat_checks(res), strict=True):
-                j = index.get(nm["name"])
-                if j is not None:
-                    out[r, j] = rank_margin(c)
+            for j, c in rows[board(row)].items():
+                out[r, j] = rank_margin(c)
         return out
 
     with run_scope():
         worst = search(k, margins)
-    return _assemble(bus, nominal, specs, worst, board, index, seen)
+    return _assemble(bus, nominal, specs, worst, board, rows, seen)
+
+
+def _by_index(bus: Bus, res: BusResult, index: dict[str, int]) -> dict[int, object]:
+    """The checks of one board's result by the index of their name among the nominal
+    board's checks (a check the nominal board does not have is left out)."""
+    out = {}
+    for nm, (_, c) in zip(check_names(bus, res), flat_checks(res), strict=True):
+        j = index.get(nm["name"])
+        if j is not None:
+            out[j] = c
+    return out
 
 
 def _corner_text(specs, u, moves=None) -> str:
@@ -185,14 +195,14 @@ def _corner_text(specs, u, moves=None) -> str:
     return ", ".join(parts) if parts else "nominal"
 
 
-def _assemble(bus, nominal, specs, worst, board, index, seen) -> BusResult:
-    """The worst-case result: each check from its worst board."""
+def _assemble(bus, nominal, specs, worst, board, rows, seen) -> BusResult:
+    """The worst-case result: each check from its worst board (``rows``: each board's
+    checks by index, :func:`_by_index`)."""
     picked = {}
     for j, u in enumerate(worst):
-        res = board(u)
-        for nm, (_, c) in zip(check_names(bus, res), flat_checks(res), strict=True):
-            if index.get(nm["name"]) == j:
-                picked[j] = (c, u)
+        c = rows[board(u)].get(j)
+        if c is not None:
+            picked[j] = (c, u)
     names = check_names(bus, nominal)
 
     def worst_check(j, c):
@@ -204,14 +214,11 @@ def _assemble(bus, nominal, specs, worst, board, index, seen) -> BusResult:
         def moves(i):  # flipping parameter i changes the check (unknown: say it does)
             v = np.array(u, dtype=float)
             v[i] = -v[i]
-            other = seen.get(tuple(float(x) for x in v))
-            if other is None:
+            oc = rows.get(tuple(float(x) for x in v), {}).get(j)
+            if oc is None:
                 return True
-            for nm, (_, oc) in zip(check_names(bus, other), flat_checks(other), strict=True):
-                if index.get(nm["name"]) == j:
-                    a, b = rank_margin(oc), rank_margin(w)
-                    return not (a == b or abs(a - b) <= 1e-12 * max(1.0, abs(b)))
-            return True
+            a, b = rank_margin(oc), rank_margin(w)
+            return not (a == b or abs(a - b) <= 1e-12 * max(1.0, abs(b)))
 
         text = _corner_text(specs, u, moves)
         return replace(w, message=f"{w.message} (worst corner: {text})",

@@ -16,14 +16,19 @@ in single- and multiphase networks', IEEE Trans. PAS-88, 1969). At each end the 
 conductors meet their terminations: a resistor R to a source voltage and a capacitor C
 to ground on each (backward Euler in the capacitor), a 2 x 2 solve per step. Delays are
 read from the stored history by linear interpolation, so the step must not exceed the
-shorter modal delay.
+shorter modal delay.  A step reads only waves sent at least one delay earlier, so where
+every delay spans two steps or more the march goes in runs shorter than the shortest
+delay: the waves a run reads are gathered, and all but the capacitors' memory formed,
+for the whole run at once (the same arithmetic as step by step, to the last bit).
 
 The start is the DC state of the terminations (the line carries their DC current).
 """
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
+from typing import NamedTuple
 
 import numpy as np
 
@@ -36,6 +41,8 @@ from pinlib.physics.lines.model import C0
 __all__ = ["EndLoads", "PairWaves", "coupled_waves", "coupled_waves_batch"]
 
 _T = np.array([[1.0, 1.0], [1.0, -1.0]]) / np.sqrt(2.0)
+#: Longest run of steps :func:`_march` gathers at once (its arrays are run x 4B values).
+_MAX_RUN = 256
 
 
 @dataclass(frozen=True)
@@ -142,8 +149,24 @@ def coupled_waves_batch(line: CoupledLine, length, t, near: EndLoads,
     return _march(z, tau, t, dt, near, far)
 
 
-def _matvec(m, x):
-    return np.matmul(m, x[..., None])[..., 0]
+class _Setup(NamedTuple):
+    """What every step of :func:`_march` uses: the folded terminations (``m``, ``s_n``,
+    ``p``; ``gk``, ``k``, ``src`` for the current into the line), the record of the
+    waves sent (``rows``, its first ``pad`` rows the DC state) and where each end reads
+    the waves the other end sent (``base``, row 0 at weights ``keep`` and ``frac``)."""
+
+    z: np.ndarray
+    m: np.ndarray
+    s_n: np.ndarray
+    p: np.ndarray
+    gk: np.ndarray
+    k: np.ndarray
+    src: np.ndarray
+    rows: np.ndarray
+    pad: int
+    base: np.ndarray
+    keep: np.ndarray
+    frac: np.ndarray
 
 
 def _march(z, tau, t, dt, near: EndLoads, far: EndLoads) -> PairWaves:
@@ -154,6 +177,11 @@ def _march(z, tau, t, dt, near: EndLoads, far: EndLoads) -> PairWaves:
     P rows the DC state (before the edge); a delay of ``tau = (k + f) dt`` reads the
     other end's rows n - k - 1 and n - k at fixed weights.  The terminations' solve is
     folded into constant matrices before the loop.
+
+    Where every delay spans two steps or more, the steps go in runs
+    (:func:`_in_runs`), else one by one (:func:`_one_by_one`).  Either way each value
+    is the same arithmetic, in the same order and through the same kernels, as a step
+    written out on its own.
     """
     nb, nt = z.shape[0], t.size
     g0, c0, vs0 = _end(near, nt, "near", nb)
@@ -163,11 +191,7 @@ def _march(z, tau, t, dt, near: EndLoads, far: EndLoads) -> PairWaves:
     solve = np.linalg.inv(np.eye(2) + zc[None] * (g + k)[:, :, None, :])  # (2, B, 2, 2)
     src = np.moveaxis(g[..., None] * np.stack([vs0, vs1]), -1, 0)        # (nt, 2, B, 2)
     # v = solve (T a + zc (src + k vp)) = M a + S[n] + P vp
-    m = solve @ _T
     zs = solve @ zc[None]
-    s_n = np.einsum("ebij,nebj->nebi", zs, src)
-    p = zs * k[:, :, None, :]
-    gk = g + k
     v_dc, i_dc = _dc(g0, vs0[:, :, 0], g1, vs1[:, :, 0])
     init = np.stack([v_dc @ _T + z * (i_dc @ _T), v_dc @ _T - z * (i_dc @ _T)])
     lag = tau / dt
@@ -176,20 +200,73 @@ def _march(z, tau, t, dt, near: EndLoads, far: EndLoads) -> PairWaves:
     h = np.zeros((pad + nt) * width)
     h[:pad * width] = np.tile(init.ravel(), pad)
     back = np.floor(-lag).astype(int)                  # row n + back, weight 1 - frac
-    frac = np.tile((-lag - back).ravel(), 2)
-    keep = 1.0 - frac
+    frac = np.tile((-lag - back).ravel(), 2).reshape(2, nb, 2)
     # each end reads the waves the other end sent
     other = np.concatenate([np.arange(2 * nb, width), np.arange(2 * nb)])
-    base = np.tile(((back + pad) * width).ravel(), 2) + other
-    v_ends = np.empty((nt, 2, nb, 2))
-    vp = np.stack([v_dc, v_dc])
+    base = (np.tile(((back + pad) * width).ravel(), 2) + other).reshape(2, nb, 2)
+    setup = _Setup(z, solve @ _T, np.einsum("ebij,nebj->nebi", zs, src),
+                   zs * k[:, :, None, :], g + k, k, src, h.reshape(pad + nt, 2, nb, 2),
+                   pad, base, 1.0 - frac, frac)
+    v_ends = np.empty((nt + 1, 2, nb, 2))
+    v_ends[0] = v_dc                                   # the state before the edge
+    run = _run_length(lag)
+    if run > 1:
+        _in_runs(setup, v_ends, run)
+    else:
+        _one_by_one(setup, v_ends)
+    v_ends = v_ends[1:]
+    return PairWaves(t, np.moveaxis(v_ends[:, 0], 0, -1), np.moveaxis(v_ends[:, 1], 0, -1))
+
+
+def _run_length(lag) -> int:
+    """Steps that may be solved as one run: a step reads the rows ``lag`` and ``lag - 1``
+    steps back (``lag`` >= 1, in steps), so a run shorter than every lag reads only rows
+    written before it (a whole-number lag would read one more, at weight 0); at most
+    :data:`_MAX_RUN` steps, so a run's arrays stay small."""
+    return max(1, min(math.ceil(float(np.min(lag))) - 1, _MAX_RUN))
+
+
+def _in_runs(s: _Setup, v_ends: np.ndarray, run: int) -> None:
+    """Fill ``v_ends[1:]`` (and the record) in runs of ``run`` steps.
+
+    The waves a run's steps read were all sent before it, so the run gathers them and
+    forms ``u = M a + S[n]`` for all its steps at once; only ``v = u + P vp`` goes step
+    by step, and the waves the run sends are formed after it.
+    """
+    nt = v_ends.shape[0] - 1
+    width = s.base.size
+    for n0 in range(0, nt, run):
+        n1 = min(n0 + run, nt)
+        idx = s.base + (np.arange(n0, n1) * width)[:, None, None, None]
+        flat = s.rows.reshape(-1)
+        a = s.keep * flat[idx] + s.frac * flat[idx + width]             # (K, 2, B, 2)
+        u = np.matmul(s.m, a[..., None])[..., 0] + s.s_n[n0:n1]
+        for n in range(n0, n1):
+            np.add(u[n - n0], np.matmul(s.p, v_ends[n][..., None])[..., 0],
+                   out=v_ends[n + 1])
+        v, vp = v_ends[n0 + 1:n1 + 1], v_ends[n0:n1]
+        i = s.src[n0:n1] - s.gk * v + s.k * vp
+        s.rows[s.pad + n0:s.pad + n1] = v @ _T + s.z * (i @ _T)
+
+
+def _one_by_one(s: _Setup, v_ends: np.ndarray) -> None:
+    """Fill ``v_ends[1:]`` (and the record) a step at a time (a delay of less than two
+    steps): the arithmetic of :func:`_in_runs` for runs of one step, without the
+    run's bookkeeping."""
+    nt = v_ends.shape[0] - 1
+    width = s.base.size
+    flat = s.rows.reshape(-1)
+    base = s.base.ravel()
+    keep, frac = s.keep.ravel(), s.frac.ravel()
     for n in range(nt):
         idx = base + n * width
-        a = (keep * h[idx] + frac * h[idx + width]).reshape(2, nb, 2)
-        v = _matvec(m, a) + s_n[n] + _matvec(p, vp)
-        i = src[n] - gk * v + k * vp
-        row = (pad + n) * width
-        h[row:row + width] = (v @ _T + z * (i @ _T)).ravel()
-        v_ends[n] = v
-        vp = v
-    return PairWaves(t, np.moveaxis(v_ends[:, 0], 0, -1), np.moveaxis(v_ends[:, 1], 0, -1))
+        a = (keep * flat[idx] + frac * flat[idx + width]).reshape(s.base.shape)
+        vp = v_ends[n]
+        v = _matvec(s.m, a) + s.s_n[n] + _matvec(s.p, vp)
+        i = s.src[n] - s.gk * v + s.k * vp
+        s.rows[s.pad + n] = v @ _T + s.z * (i @ _T)
+        v_ends[n + 1] = v
+
+
+def _matvec(m, x):
+    return np.matmul(m, x[..., None])[..., 0]
