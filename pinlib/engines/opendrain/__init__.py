@@ -41,8 +41,7 @@ The package:
 
 from __future__ import annotations
 
-from pinlib.core.errors import DesignError, InputError
-from pinlib.engines.opendrain.checks import Context, evaluate_segment
+from pinlib.engines.opendrain.batch import WorstCase, run
 from pinlib.engines.opendrain.inputs import (
     LineInputs,
     SegmentInputs,
@@ -54,6 +53,7 @@ from pinlib.engines.opendrain.rules import (
     GATE_OVERDRIVE,
     SIGNALS,
 )
+from pinlib.engines.opendrain.wording_segment import segment
 from pinlib.model.design import Bus, Design
 from pinlib.model.result import BusResult, SegmentResult
 from pinlib.physics.pullup import Budget, budget, capacitance_from_rise
@@ -94,16 +94,10 @@ def evaluate_bus(bus: Bus, design: Design) -> BusResult:
         When the bus cannot be evaluated (an SMBus rail below its rise-time point).
     """
     lim, seg_ins = collect(bus, design)
-    ctx = Context(bus, design, lim, seg_ins)
+    ctx, batch = run(bus, design, WorstCase(1), collected=(lim, seg_ins), name_segments=True)
+    ctx.collected = seg_ins
     result = BusResult(id=bus.id, protocol=bus.protocol, workings=(lim, seg_ins))
-    groups = []
-    for s in seg_ins:
-        try:
-            groups.append(evaluate_segment(ctx, s))
-        except InputError as exc:  # a value the physics refuses: name the segment
-            raise DesignError(exc.problem, field=f"bus {bus.id} segment {s.segment.id}"
-                              + (f": {exc.field}" if exc.field else ""), value=exc.value,
-                              expected=exc.expected) from None
+    groups = [segment(ctx, s, sb) for s, sb in zip(seg_ins, batch.segments, strict=True)]
     head = f"{lim.label}, clock {_f(ctx.clock, 'Hz')}"
     if len(bus.controllers) > 1:
         head += (f"; {len(bus.controllers)} controllers: timing from {ctx.controller.ref}")

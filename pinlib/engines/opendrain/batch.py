@@ -32,6 +32,7 @@ from collections.abc import Sequence
 
 import numpy as np
 
+from pinlib.core.errors import DesignError, InputError
 from pinlib.engines.opendrain.arith import fall_bounds, far_drivers, low_levels
 from pinlib.engines.opendrain.batchgathered import line_from
 from pinlib.engines.opendrain.batchinputs import (
@@ -123,10 +124,12 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     phys = unchecked if _in_domain(ctx, ln, v, rp_lo, rp_hi, far) else pu
     # the end nearer its bound, by pullup.pullup_margins' two ratios (its inputs are
     # the gathering's): Rp(min) below (>=), Rp(max) above (<=)
-    low = rp_lo / ln.rp_min - 1.0 <= 1.0 - rp_hi / ln.rp_max
+    m_lo, m_hi = rp_lo / ln.rp_min - 1.0, 1.0 - rp_hi / ln.rp_max
+    low = m_lo <= m_hi
     out.pick("pullup-window", up, [(np.where(low, rp_lo, rp_hi),
                                     np.where(low, ln.rp_min, ln.rp_max),
-                                    np.where(low, -1.0, 1.0), None)], warn, "Ω")
+                                    np.where(low, -1.0, 1.0), None)], warn, "Ω").basis = \
+        (m_lo, m_hi)
     tr = phys.rise_time(rp_hi, ln.cb, ln.rise_factor)
     f["rise_time"] = tr
     f["rise_time_10_90"] = phys.rise_time(rp_hi, ln.cb, RISE_10_90)
@@ -157,7 +160,7 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     if levels or offset_levels:
         rows = [(i, d) for _, i, d in levels + offset_levels if d is not None]
         if rows:
-            _sink_check(ctx, out, up, rows)
+            _sink_check(ctx, out, up, rows).basis = [_index(ln.drivers, d) for _, d in rows]
         f["pullup_power"] = _reduce(np.max, [_worst_max(v * (v - lv[0]) / rp_lo)
                                              for lv in levels + offset_levels])
     # -- high level
@@ -173,7 +176,7 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             limit = lim.v_nh_rel * v
             nh = out.pick("noise-margin-high", up, [ge(nmh, limit)], warn, "V")
             f["noise_margin_high"] = lambda: nh.value[:, None]  # as noise_margin_low
-    _fall_checks(ctx, ln, out, f, rp_lo, v, far, phys)
+    _fall_checks(ctx, s.index, ln, out, f, rp_lo, v, far, phys)
 
 
 def _in_domain(ctx, ln: _Line, v, rp_lo, rp_hi, far) -> bool:
@@ -198,7 +201,7 @@ def _in_domain(ctx, ln: _Line, v, rp_lo, rp_hi, far) -> bool:
                 and (b > 0).all())
 
 
-def _sink_check(ctx, out: _Out, up: str, rows: list) -> None:
+def _sink_check(ctx, out: _Out, up: str, rows: list) -> BatchCheck:
     """sink-current: each driver's largest current against its IOL (``rows`` of
     (current, driver)); the worst is the driver nearest (or furthest over) its IOL."""
     currents, iols = np.empty((2, ctx.n, len(rows)))  # variant × driver
@@ -214,6 +217,7 @@ def _sink_check(ctx, out: _Out, up: str, rows: list) -> None:
     def rows_of():
         sc.row, sc.row_values = k[:, 0], currents
     out.after(rows_of)
+    return sc
 
 
 def _driver_behind(chk, stacked, n: int, names: list) -> None:
@@ -225,7 +229,13 @@ def _driver_behind(chk, stacked, n: int, names: list) -> None:
     chk.by, chk.by_names = by[np.arange(n), corner], names
 
 
-def _fall_checks(ctx, ln: _Line, out: _Out, f: dict, rp_lo, v, far, phys) -> None:
+def _index(items: list, x) -> int:
+    """The position of ``x`` itself in ``items`` (by identity). [1]"""
+    return next(j for j, y in enumerate(items) if y is x)
+
+
+def _fall_checks(ctx, s_index: int, ln: _Line, out: _Out, f: dict, rp_lo, v, far,
+                 phys) -> None:
     """Fall time (each driver's upper bound, the worst named) and tf(min)."""
     lim, warn, up = ctx.lim, ctx.warn, ln.signal.upper()
     bounds = fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far, ctx.segs, ln.signal, phys)
@@ -233,9 +243,14 @@ def _fall_checks(ctx, ln: _Line, out: _Out, f: dict, rp_lo, v, far, phys) -> Non
     if not bounds:
         return
     f["fall_time"] = _reduce(np.max, [_worst_max(t) for t, _, _, _ in bounds])
-    out.pick("fall-time", up, [le(t, lim.tf_max) for t, _, _, _ in bounds], warn, "s",
-             [d.tap.label + ("" if link is None else f" via {link.dev.ref}")
-              for _, d, link, _ in bounds])
+    ft = out.pick("fall-time", up, [le(t, lim.tf_max) for t, _, _, _ in bounds], warn, "s",
+                  [d.tap.label + ("" if link is None else f" via {link.dev.ref}")
+                   for _, d, link, _ in bounds])
+    # per row: what bounds it (arith.fall_bounds' info) and whose driver it is (the
+    # segment and the index among that segment's drivers on this line)
+    ft.basis = [(info, s_index if link is None else link.other,
+                 _index((ln if link is None else ctx.segs[link.other].lines[ln.signal]).drivers,
+                        d)) for _, d, link, info in bounds]
     tf_min = lim.tf_min(np.asarray(v[:, -1:], dtype=float))
     if tf_min is not None:
         for d in ln.drivers:
@@ -271,12 +286,15 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
     if ctrl is not None:
         td = ctx.parts.timing(ctrl)
         t_low, t_high = td.t_low, td.t_high
+    counted = t_low is None or t_high is None
     t_low, t_high = counted_clock(lim, clock, t_low, t_high)
     tf_scl = figs["scl"]["fall_time"]
     figs["segment"] = {"scl_frequency_effective": pu.scl_frequency(
         t_low, t_high, figs["scl"]["rise_time"], tf_scl if tf_scl is not None else 0.0),
         "sda_setup_margin": None}
-    out.pick("scl-frequency", None, [le(clock, lim.f_max)], 0.0, "Hz")
+    # what the wording names: the SCL times and whether they are counted (none stated)
+    out.pick("scl-frequency", None, [le(clock, lim.f_max)], 0.0, "Hz").basis = {
+        "t_low": t_low, "t_high": t_high, "counted": counted}
     slow = [(ctx.parts.timing(d).f_max, d.ref) for d in seg.devices
             if not d.is_controller and not d.is_bridge and ctx.parts.timing(d).f_max is not None]
     if slow:
@@ -291,10 +309,10 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
     sources = list(data_sources(s.index, ctx.ctrl_seg, [(o.index, o.seg) for o in ctx.segs],
                                 ctrl, ctx.delay, drives_sda))
     if sources:
-        budgets = [t_low - (ctx.parts.timing(d).t_vd_dat + extra) - tr_sda
-                   for d, extra in sources]
-        st = out.pick("setup-time", None, [ge(b, lim.t_su_dat) for b in budgets], warn, "s",
-                      [d.ref for d, _ in sources])
+        tvd = [ctx.parts.timing(d).t_vd_dat + extra for d, extra in sources]
+        st = out.pick("setup-time", None, [ge(t_low - t - tr_sda, lim.t_su_dat) for t in tvd],
+                      warn, "s", [d.ref for d, _ in sources])
+        st.basis = {"t_low": t_low, "t_vd": tvd, "t_r": tr_sda}
         figs["segment"]["sda_setup_margin"] = lambda: st.value - lim.t_su_dat
 
 
@@ -313,7 +331,7 @@ def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
         warns.append(np.where(follows, 0.0, warn))
     if rows:
         out.pick("input-voltage", None, rows, warns, "V", names, per_row=True)
-    rows, seen, names = [], set(), []
+    rows, seen, names, lows = [], set(), [], []
     for t in taps:
         if t.ref in seen:
             continue
@@ -325,9 +343,10 @@ def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
         hi = t.rail.max(axis=1, keepdims=True)
         m, low_side = supply_margin(lo, hi, s_min, s_max)
         names.append(t.label)
+        lows.append(low_side)
         rows.append(given(m, np.where(low_side, lo, hi), np.where(low_side, s_min, s_max)))
-    if rows:
-        out.pick("supply-range", None, rows, 0.0, "V", names)
+    if rows:  # basis: per row, whether the rail's low end is the one nearer its limit
+        out.pick("supply-range", None, rows, 0.0, "V", names).basis = lows
     # -- power states
     for d in seg.devices:
         if not d.switched:
@@ -407,6 +426,22 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
         When the physics refuses a value (the engine raises the same for that
         variant).
     """
+    return run(bus, design, scenario, swap=swap, collected=collected)[1]
+
+
+def run(bus: Bus, design: Design, scenario: Scenario, *,
+        swap: tuple[str, Sequence[Part]] | None = None, collected=None,
+        name_segments: bool = False):
+    """:func:`build`, returning also what the checks were made in (the limits, the
+    segments' joins, the controller and its segment, the clock and the warning
+    threshold: the wording of :func:`pinlib.engines.opendrain.evaluate_bus` reads them).
+    With ``name_segments``, a value the physics refuses while a segment's checks are
+    made raises a DesignError naming the bus and segment (as the engine reports it).
+
+    Returns
+    -------
+    (context, BusBatch)
+    """
     lim, seg_ins = collected if collected is not None else collect(bus, design)
     n = int(scenario.n) if swap is None else len(swap[1])
     parts = _Parts(lim, swap)
@@ -443,14 +478,26 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
     ctx.delay = delays(ctx.ctrl_seg, joins)
     result = BusBatch(bus.id, n)
     for s in segs:
-        out = _Out(s.seg.id, n)
-        figs: dict = {}
-        for ln in s.lines.values():
-            _line_checks(ctx, s, ln, out, figs)
-        _segment_checks(ctx, s, out, figs)
-        checks = out.finish()
-        result.segments.append(SegmentBatch(s.seg.id, checks, _figures(s, figs, out)))
-    return result
+        try:
+            result.segments.append(_segment(ctx, s, n))
+        except InputError as exc:  # a value the physics refuses: name the segment
+            if not name_segments:
+                raise
+            raise DesignError(exc.problem, field=f"bus {bus.id} segment {s.seg.id}"
+                              + (f": {exc.field}" if exc.field else ""), value=exc.value,
+                              expected=exc.expected) from None
+    return ctx, result
+
+
+def _segment(ctx, s: _Seg, n: int) -> SegmentBatch:
+    """Every check and figure of one segment."""
+    out = _Out(s.seg.id, n)
+    figs: dict = {}
+    for ln in s.lines.values():
+        _line_checks(ctx, s, ln, out, figs)
+    _segment_checks(ctx, s, out, figs)
+    checks = out.finish()
+    return SegmentBatch(s.seg.id, checks, _figures(s, figs, out))
 
 
 def _figures(s: _Seg, figs: dict, out: _Out) -> dict:

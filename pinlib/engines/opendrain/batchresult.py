@@ -55,6 +55,16 @@ class BatchCheck:
     by, by_names : numpy.ndarray, list or None
         Where kept (v-ol: the driver whose low level is the bus's), the index into
         ``by_names`` of what is behind the worst value, shape ``(N,)``. [1]
+    basis : Any
+        What a check's wording needs beyond its numbers, where kept: pullup-window
+        (margin to Rp(min), margin to Rp(max)) as :func:`pinlib.physics.pullup.pullup_margins`
+        gives them; sink-current each row's index among its line's drivers; fall-time per
+        row (:func:`.arith.fall_bounds`' info, the driver's segment index, its index among
+        that segment's drivers of the line); scl-frequency a dict of the SCL low and high
+        times and whether they are counted (the controller states none); setup-time a
+        dict of ``t_low``, each row's tVD;DAT with its bridge delays (``t_vd``) and the
+        SDA rise time ``t_r``; supply-range per row whether the rail's low end is the
+        one nearer its limit. [unit]
     """
 
     id: str
@@ -72,6 +82,7 @@ class BatchCheck:
     row_values: Any = None
     by: Any = None
     by_names: Any = None
+    basis: Any = None
 
     def worst(self, i: int = 0) -> tuple[str | None, int | None]:
         """What variant ``i``'s worst came from: the name of its row (None for a check

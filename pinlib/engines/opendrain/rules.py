@@ -276,25 +276,34 @@ def supply_range_check(who: str, lo: float, hi: float, s_min: float, s_max: floa
     range is a hard limit: inside it passes, with no warning band.  ``source_of(low_side)``
     names the limit's source; ``ends``: the message names the rail's end (False for one
     board's rail, ``lo == hi``, whose corners the engine takes elsewhere). [V]"""
-    from pinlib.core.quantity import format_si
-
     m, low_side = supply_margin(lo, hi, s_min, s_max)
-    rng = f"{format_si(s_min, 'V')} to {format_si(s_max, 'V')}"
     if bool(low_side):
-        at = " at the rail's minimum" if ends else ""
         chk = check_min("supply-range", lo, s_min, "V", source_of(True),
-                        f"{who} runs from {format_si(lo, 'V')}{at}; its part needs {rng}",
+                        supply_range_text(who, True, lo, s_min, s_max, ends),
                         subject=who, warn_margin=0.0)
     else:
-        at = " at the rail's maximum" if ends else ""
         chk = check_max("supply-range", hi, s_max, "V", source_of(False),
-                        f"{who} runs from {format_si(hi, 'V')}{at}; its part allows {rng}",
+                        supply_range_text(who, False, hi, s_min, s_max, ends),
                         subject=who, warn_margin=0.0)
     if chk.status == "fail":
         chk.fix = ("give the device its own rail (supply = \"...\" on the device) or choose a "
                    "part for this rail")
         chk.message += f"; {chk.fix}"
     return chk
+
+
+def supply_range_text(who: str, low: bool, rail: float, s_min: float, s_max: float,
+                      ends: bool = True) -> str:
+    """The message of a ``supply-range`` check: the rail's end ``rail`` (its low end
+    where ``low``) against the part's range."""
+    from pinlib.core.quantity import format_si
+
+    rng = f"{format_si(s_min, 'V')} to {format_si(s_max, 'V')}"
+    if low:
+        at = " at the rail's minimum" if ends else ""
+        return f"{who} runs from {format_si(rail, 'V')}{at}; its part needs {rng}"
+    at = " at the rail's maximum" if ends else ""
+    return f"{who} runs from {format_si(rail, 'V')}{at}; its part allows {rng}"
 
 
 def supply_margin(lo, hi, s_min, s_max):
