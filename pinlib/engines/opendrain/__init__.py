@@ -96,6 +96,7 @@ def evaluate_bus(bus: Bus, design: Design) -> BusResult:
     lim, seg_ins = collect(bus, design)
     ctx, batch = run(bus, design, WorstCase(1), collected=(lim, seg_ins), name_segments=True)
     ctx.collected = seg_ins
+    ctx.devices = {d.ref: d for s in seg_ins for d in s.segment.devices}
     result = BusResult(id=bus.id, protocol=bus.protocol, workings=(lim, seg_ins))
     groups = [segment(ctx, s, sb) for s, sb in zip(seg_ins, batch.segments, strict=True)]
     head = f"{lim.label}, clock {_f(ctx.clock, 'Hz')}"

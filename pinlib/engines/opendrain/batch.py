@@ -28,6 +28,7 @@ second axis holds the rail corners (two for :class:`WorstCase`, one for a sample
 
 from __future__ import annotations
 
+import math
 from collections.abc import Sequence
 
 import numpy as np
@@ -102,7 +103,8 @@ _NOT_RECEIVERS = ("connector", "cable")
 
 def _worst_max(x):
     """Largest over the corner axis. [unit]"""
-    return np.max(x, axis=1, keepdims=True)
+    return x.max(axis=1, keepdims=True) if type(x) is np.ndarray else \
+        np.max(x, axis=1, keepdims=True)
 
 
 def _far(s: _Seg, segs: list[_Seg], links: list[_Link], signal: str):
@@ -139,8 +141,12 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     levels = [(vb, i, d if link is None else None) for vb, i, d, link in raw]
     f["v_ol"] = None
     if levels:
-        shape = np.broadcast_shapes(*[lv[0].shape for lv in levels])
-        stacked = np.stack([np.broadcast_to(lv[0], shape) for lv in levels])
+        shapes = {lv[0].shape for lv in levels}
+        if len(shapes) == 1:  # the usual case: no broadcasting needed
+            stacked = np.stack([lv[0] for lv in levels])
+        else:
+            shape = np.broadcast_shapes(*shapes)
+            stacked = np.stack([np.broadcast_to(lv[0], shape) for lv in levels])
         vol_bus = np.max(stacked, axis=0)
         f["v_ol"] = _worst_max(vol_bus)
         if ln.receivers:
@@ -195,15 +201,32 @@ def _in_domain(ctx, ln: _Line, v, rp_lo, rp_hi, far) -> bool:
     for d, link, _, _ in far_drivers(far, ctx.segs, ln.signal):  # their fall bounds
         at_least_0.append(d.r_series + link.r_on)
         above_0 += [d.v_ol, d.i_ol]
-    a = np.concatenate([np.ravel(x) for x in at_least_0])
-    b = np.concatenate([np.ravel(x) for x in above_0])
-    return bool(np.isfinite(a).all() and (a >= 0).all() and np.isfinite(b).all()
-                and (b > 0).all())
+    return _all_finite(at_least_0, False) and _all_finite(above_0, True)
+
+
+def _all_finite(xs: list, positive: bool) -> bool:
+    """Whether every value of ``xs`` (numbers or arrays) is finite and at or above 0
+    (above 0 with ``positive``); a plain number is looked at without numpy."""
+    arrays = []
+    for x in xs:
+        if type(x) is float:
+            if not (0.0 < x < math.inf if positive else 0.0 <= x < math.inf):  # NaN fails
+                return False
+        else:
+            arrays.append(np.ravel(x))
+    if not arrays:
+        return True
+    a = np.concatenate(arrays)
+    return bool(np.isfinite(a).all() and ((a > 0) if positive else (a >= 0)).all())
 
 
 def _sink_check(ctx, out: _Out, up: str, rows: list) -> BatchCheck:
     """sink-current: each driver's largest current against its IOL (``rows`` of
     (current, driver)); the worst is the driver nearest (or furthest over) its IOL."""
+    if ctx.n == 1:
+        sc = _sink_check_one(ctx, out, up, rows)
+        if sc is not None:
+            return sc
     currents, iols = np.empty((2, ctx.n, len(rows)))  # variant × driver
     for j, (i, d) in enumerate(rows):
         currents[:, j] = _worst_max(i)[:, 0]
@@ -216,6 +239,27 @@ def _sink_check(ctx, out: _Out, up: str, rows: list) -> BatchCheck:
 
     def rows_of():
         sc.row, sc.row_values = k[:, 0], currents
+    out.after(rows_of)
+    return sc
+
+
+def _sink_check_one(ctx, out: _Out, up: str, rows: list) -> BatchCheck | None:
+    """:func:`_sink_check` at one variant in plain Python (None where a rating is not a
+    positive finite number: the arrays then give the same answer as for many)."""
+    currents = [float(i.max()) for i, _ in rows]
+    iols = [_one(d.i_ol) for _, d in rows]
+    if not all(0.0 < x < math.inf for x in iols):
+        return None
+    k = 0  # the first largest ratio, NaN counted as the largest (as numpy's argmax)
+    for j in range(1, len(rows)):
+        r, best = currents[j] / iols[j], currents[k] / iols[k]
+        if best == best and (r != r or r > best):
+            k = j
+    sc = out.pick("sink-current", up, [le(currents[k], iols[k])], ctx.warn, "A",
+                  [d.tap.label for _, d in rows])
+
+    def rows_of():
+        sc.row, sc.row_values = np.array([k]), np.array([currents])
     out.after(rows_of)
     return sc
 
@@ -467,8 +511,8 @@ def run(bus: Bus, design: Design, scenario: Scenario, *,
         segs.append(s)
     pairs = [(s.index, s.seg) for s in segs]
     joins = links(pairs)
-    if any(ln.kind == "mosfet" for lst in joins.values() for ln in lst):
-        _couple(segs, joins, chooses)
+    if not own and any(ln.kind == "mosfet" for lst in joins.values() for ln in lst):
+        _couple(segs, joins, chooses)  # (at the design's own corners: the gathering's)
     ctx = _Ctx()
     ctx.lim, ctx.segs, ctx.links, ctx.parts, ctx.n = lim, segs, joins, parts, n
     ctx.by_id = {s.seg.id: s for s in segs}
@@ -508,6 +552,8 @@ def _figures(s: _Seg, figs: dict, out: _Out) -> dict:
         for name, x in group.items():
             if callable(x):
                 group[name] = x()
+    if out.n == 1:
+        return _figures_one(s, figs)
 
     def col(x):
         return None if x is None else out._n(np.asarray(x, dtype=float).reshape(-1))
@@ -525,3 +571,36 @@ def _figures(s: _Seg, figs: dict, out: _Out) -> dict:
     res["rise_factor"] = col(s.lines["sda"].rise_factor)
     res.update({k: col(x) for k, x in figs["segment"].items()})
     return res
+
+
+def _one(x) -> float | None:
+    """The one value of a figure at one variant (None stays None). [unit]"""
+    if x is None or type(x) is float:
+        return x
+    return float(x.item()) if hasattr(x, "item") else float(x)
+
+
+def _worse(pick, a: float, b: float) -> float:
+    """``pick`` (max or min) of two numbers, NaN propagated (as ``_reduce``). [unit]"""
+    return a if a != a else b if b != b else pick(a, b)
+
+
+def _figures_one(s: _Seg, figs: dict) -> dict:
+    """:func:`_figures` at one variant, in plain Python over the few numbers; each
+    figure a view of one array of shape ``(1,)``."""
+    res: dict = {}
+    for name, pick in _WORST.items():
+        vals = [_one(figs[sig][name]) for sig in SIGNALS if figs[sig].get(name) is not None]
+        worst = vals[0] if vals else None
+        for x in vals[1:]:
+            worst = _worse(pick, worst, x)
+        res[name] = worst
+    for name in ("bus_capacitance", "rise_time", "fall_time", "pullup"):
+        for sig in SIGNALS:
+            res[f"{name}_{sig}"] = _one(figs[sig].get(name))
+    res["supply"] = float(s.seg.supply)
+    res["pullup_resistor"] = _one(s.lines["sda"].pullup)
+    res["rise_factor"] = _one(s.lines["sda"].rise_factor)
+    res.update({k: _one(x) for k, x in figs["segment"].items()})
+    arr = np.array([math.nan if x is None else x for x in res.values()])
+    return {k: None if x is None else arr[j:j + 1] for j, (k, x) in enumerate(res.items())}

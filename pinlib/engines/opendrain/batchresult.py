@@ -147,8 +147,8 @@ class _Pending:
 def _corners(rows) -> int:
     """The number of rail corners of a check's rows (the last axis, broadcast). [1]"""
     k = 1
-    for r in rows:
-        for x in r:
+    for value, limit, _, margin in rows:  # the sense is a number
+        for x in (value, limit, margin):
             shape = getattr(x, "shape", None)  # a Python number or None has none
             if shape and shape[-1] > k:
                 k = shape[-1]
@@ -194,7 +194,9 @@ class _Out:
     def finish(self) -> list[BatchCheck]:
         """Every recorded check's margin, worst row and corner, value, limit and status
         (NaN counted as the worst margin; the first of equal margins)."""
-        if self._pending:
+        if self._pending and self.n == 1:
+            _finish_one(self._pending, self._rows)
+        elif self._pending:
             n, rows = self.n, self._rows
             k = max(p.k for p in self._pending)
             # (value, limit, sense, given margin) × variant × row × corner, filled by
@@ -206,11 +208,8 @@ class _Out:
                 buf[2, :, j] = sense
                 buf[3, :, j] = 0.0 if m is None else m
             margin = _margins(buf)
-            if n == 1:
-                _finish_one(self._pending, margin[0], buf[0, 0], buf[1, 0])
-            else:
-                for p in self._pending:
-                    _finish_many(p, margin, buf[0], buf[1], n)
+            for p in self._pending:
+                _finish_many(p, margin, buf[0], buf[1], n)
         for fn in self._after:
             fn()
         self._rows, self._pending, self._after = [], [], []
@@ -227,6 +226,17 @@ class _Out:
 
     def truth(self, id, signal, ok):
         self.add(id, signal, None, None, None, np.where(np.asarray(ok), 0, 2))
+
+
+def _cells(x, k: int) -> list:
+    """One variant's value of a row (a number, None for no given margin, or an array
+    of one value or one per corner) over ``k`` corners. [unit]"""
+    if x is None:
+        return [0.0] * k
+    if type(x) is float:
+        return [x] * k
+    a = np.asarray(x, dtype=float).reshape(-1)
+    return a.tolist() if a.size == k else [a.item()] * k
 
 
 def _margins(buf):
@@ -247,9 +257,28 @@ def _status(m: float, warn: float) -> int:
     return 2 if m != m or m < 0 else (1 if m < warn else 0)
 
 
-def _finish_one(pending, margin, value, limit) -> None:
-    """:meth:`_Out.finish` for one variant, in plain Python over the few numbers."""
-    m, v, lim = margin.tolist(), value.tolist(), limit.tolist()
+def _margin(value: float, limit: float, sense: float, given: float) -> float:
+    """:func:`_margins` of one cell, in plain Python (the same IEEE arithmetic). [1]"""
+    if sense == 0:
+        return given
+    excess = limit - value if sense > 0 else value - limit
+    if limit == 0:  # met (+inf) or not (−inf); NaN is not met
+        return math.inf if excess >= 0 else -math.inf
+    return excess / abs(limit)
+
+
+def _finish_one(pending, rows) -> None:
+    """:meth:`_Out.finish` for one variant, in plain Python over the few numbers (the
+    margins as :func:`_margins` works them out); each check's columns are views of a
+    few arrays made once for the segment."""
+    m, v, lim = [], [], []
+    for p in pending:
+        for j in range(p.r0, p.r1):
+            cells = [_cells(x, p.k) for x in rows[j]]
+            v.append(cells[0])
+            lim.append(cells[1])
+            m.append([_margin(*c) for c in zip(*cells, strict=True)])
+    nums, codes, where = [], [], []
     for p in pending:
         best, worst_of = None, []
         for j in range(p.r0, p.r1):
@@ -264,15 +293,20 @@ def _finish_one(pending, margin, value, limit) -> None:
                 best = (row_best[0], j, row_best[1])
         _, j, c = best
         w = p.warn[j - p.r0] if isinstance(p.warn, (list, tuple)) else p.warn
-        w = float(np.ravel(w)[0]) if np.ndim(w) else float(w)
-        chk = p.chk
-        chk.margin, chk.value, chk.limit = np.array([m[j][c]]), np.array([v[j][c]]), \
-            np.array([lim[j][c]])
-        chk.status = np.array([_status(m[j][c], w)], dtype=np.int8)
-        chk.row = None if p.single else np.array([j - p.r0])
-        chk.corner = np.array([c]) if p.k > 1 else None
+        w = w if type(w) is float else float(np.ravel(w)[0])
+        nums += (m[j][c], v[j][c], lim[j][c])
+        codes.append(_status(m[j][c], w))
+        where += (j - p.r0, c)
         if p.per_row:
-            chk.row_margins = np.array([worst_of])
+            p.chk.row_margins = np.array([worst_of])
+    nums, codes, where = np.array(nums), np.array(codes, dtype=np.int8), np.array(where)
+    for i, p in enumerate(pending):
+        chk = p.chk
+        chk.margin, chk.value, chk.limit = nums[3 * i:3 * i + 1], nums[3 * i + 1:3 * i + 2], \
+            nums[3 * i + 2:3 * i + 3]
+        chk.status = codes[i:i + 1]
+        chk.row = None if p.single else where[2 * i:2 * i + 1]
+        chk.corner = where[2 * i + 1:2 * i + 2] if p.k > 1 else None
 
 
 def _finish_many(p: _Pending, margin, value, limit, n: int) -> None:

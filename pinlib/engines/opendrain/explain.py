@@ -198,9 +198,10 @@ def segment_figures(grp: Group, seg_in: SegmentInputs, per_line: dict) -> None:
     grp.figure("rise_factor", seg_in.lines["sda"].rise_factor, "")
 
 
-def segment_notes(grp: Group, lim: OpenDrainLimits, seg_in: SegmentInputs) -> None:
+def segment_notes(grp: Group, lim: OpenDrainLimits, seg_in: SegmentInputs, r_eff) -> None:
     """A segment's notes: the rise definition, the chosen pull-up, the contributors in
-    parallel, the trace capacitance, and every default taken for a value not stated."""
+    parallel (``r_eff(signal)``: every pull-up of a line in parallel), the trace
+    capacitance, and every default taken for a value not stated."""
     if lim.rise_definition == "smbus":
         grp.notes.insert(0, f"rise and fall times follow the SMBus definition: {lim.rise_text}; "
                             "rise_time_10_90 is 10–90 % of VDD")
@@ -213,7 +214,7 @@ def segment_notes(grp: Group, lim: OpenDrainLimits, seg_in: SegmentInputs) -> No
             parts = "; ".join(f"{p['ref']} {p['pin']} {_f(p['value'], 'Ω')} ({p['kind']})"
                               for p in ln.part_pullups)
             grp.notes.append(f"{sig.upper()} pull-up contributors in parallel: design resistor "
-                             f"{_f(seg_in.pullup, 'Ω')}; {parts} → {_f(seg_in.r_eff(sig), 'Ω')}")
+                             f"{_f(seg_in.pullup, 'Ω')}; {parts} → {_f(r_eff(sig), 'Ω')}")
     if seg_in.cb_notes:
         grp.notes.append("trace capacitance: " + "; ".join(dict.fromkeys(seg_in.cb_notes)))
     grp.notes.extend(seg_in.notes)

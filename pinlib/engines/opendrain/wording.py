@@ -43,6 +43,10 @@ class Words:
         self.k += 1
         return chk
 
+    def r_eff(self, signal: str) -> float:
+        """Every pull-up of a line in parallel, nominal, as the batch worked it out. [Ω]"""
+        return one(self.ctx.segs[self.seg_in.index].r_eff(signal))
+
     def far_links(self) -> list:
         """The segment's links through pass transistors, as :func:`.arith.far_drivers`
         reads them."""
@@ -52,7 +56,7 @@ class Words:
 
 def one(x) -> float:
     """The one value of a number or an array of one element. [unit]"""
-    return float(x) if not np.ndim(x) else float(np.reshape(x, -1)[0])
+    return x if type(x) is float else float(np.reshape(x, -1)[0])
 
 
 def row_corner(bc) -> tuple[int, int]:
@@ -61,16 +65,19 @@ def row_corner(bc) -> tuple[int, int]:
             0 if bc.corner is None else int(bc.corner[0]))
 
 
+def _num(x) -> float | None:
+    """A batch column's one value; NaN or infinity is None in the result."""
+    if x is None:
+        return None
+    v = x.item(0)
+    return v if -math.inf < v < math.inf else None
+
+
 def make(bc, source: str, message: str, **kw) -> Check:
-    """A result check with the batch check's numbers (a NaN or infinite value, limit or
-    margin is None in the result)."""
-    def num(x):
-        if x is None:
-            return None
-        v = float(x[0])
-        return v if math.isfinite(v) else None
-    margin = None if bc.margin is None else float(bc.margin[0])
-    return Check(bc.id, STATUSES[int(bc.status[0])], num(bc.value), num(bc.limit), bc.unit,
+    """A result check with the batch check's numbers (a NaN or infinite value or limit
+    is None in the result)."""
+    margin = None if bc.margin is None else bc.margin.item(0)
+    return Check(bc.id, STATUSES[bc.status.item(0)], _num(bc.value), _num(bc.limit), bc.unit,
                  margin, source, message, **kw)
 
 
@@ -89,7 +96,7 @@ def line(w: Words, ln: LineInputs) -> None:
     """Every check of one line, worded, in the engine's order."""
     seg_in, lim, grp = w.seg_in, w.lim, w.grp
     up, tol = ln.signal.upper(), seg_in.tol
-    r_eff = seg_in.r_eff(ln.signal)
+    r_eff = w.r_eff(ln.signal)
     rp_lo, rp_hi = r_eff * (1 - tol), r_eff * (1 + tol)
     if lim.cb_max is not None:
         p = ln.cb_parts

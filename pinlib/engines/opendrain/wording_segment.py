@@ -28,15 +28,25 @@ _SEGMENT_UNITS = {"supply": "V", "pullup_resistor": "Ω", "rise_factor": "",
                   "scl_frequency_effective": "Hz", "sda_setup_margin": "s"}
 
 
+def _unit(name: str) -> str:
+    """The unit of a figure (a line's own figure ends in its signal)."""
+    unit = _UNIT_OF.get(name)
+    if unit is None:
+        base = name.rsplit("_sda", 1)[0].rsplit("_scl", 1)[0]
+        unit = _UNIT_OF[name] = _SEGMENT_UNITS.get(name, _UNITS.get(base, _UNITS.get(name, "")))
+    return unit
+
+
+_UNIT_OF: dict = {}
+
+
 def segment(ctx, seg_in: SegmentInputs, sb) -> Group:
     """Every figure, check and note of one segment, worded (``sb``: the batch's
     :class:`.batchresult.SegmentBatch` of this segment at one variant)."""
     w = Words(ctx, seg_in, sb.checks)
     grp = w.grp
     for name, x in sb.figures.items():
-        base = name.rsplit("_sda", 1)[0].rsplit("_scl", 1)[0]
-        unit = _SEGMENT_UNITS.get(name, _UNITS.get(base, _UNITS.get(name, "")))
-        grp.figure(name, None if x is None else float(x[0]), unit)
+        grp.figure(name, None if x is None else x.item(0), _unit(name))
     for ln in seg_in.lines.values():
         line(w, ln)
     _timing(w, sb)
@@ -45,7 +55,7 @@ def segment(ctx, seg_in: SegmentInputs, sb) -> Group:
     _power(w, taps)
     _bridges(w)
     assert w.k == len(sb.checks), [c.id for c in sb.checks[w.k:]]  # every check worded
-    segment_notes(grp, ctx.lim, seg_in)
+    segment_notes(grp, ctx.lim, seg_in, w.r_eff)
     return grp
 
 
@@ -78,7 +88,7 @@ def _timing(w: Words, sb) -> None:
     if bc is None:
         return
     w.take("setup-time")
-    devices = {d.ref: d for s in ctx.collected for d in s.segment.devices}
+    devices = ctx.devices
     for ref in bc.names:
         if devices[ref].part.timing.t_vd_dat is None:
             _default(seg_in, f"no t_vd_dat stated: taken at the specification's "
@@ -153,7 +163,7 @@ def _power(w: Words, taps: list) -> None:
         currents = []
         for t in loading:
             sig = "sda" if t.pin.function == SIGNALS["sda"] else "scl"
-            currents.append((sig.upper(), (v_max - CLAMP_DROP) / (seg_in.r_eff(sig) * (1 - tol))))
+            currents.append((sig.upper(), (v_max - CLAMP_DROP) / (w.r_eff(sig) * (1 - tol))))
         shown = ", ".join(f"{s} {_f(i, 'A')}" for s, i in currents)
         chk = check_true(
             "power-off", False, f"{_COMMON}: input clamp diodes to the device's own rail "
