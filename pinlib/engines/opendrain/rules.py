@@ -229,12 +229,6 @@ def controller_of(bus: Bus, segments: list[tuple[int, Segment]]) -> tuple[Device
     return ctrl, 0
 
 
-def worst_index(margins: np.ndarray) -> int:
-    """Index of the smallest margin, NaN counted as the worst. [1]"""
-    m = np.where(np.isnan(margins), -np.inf, margins)
-    return int(np.argmin(m))
-
-
 def counted_clock(lim: OpenDrainLimits, clock: float, t_low, t_high):
     """SCL low and high times as the controller counts them: its own where its part
     states them, else the specification's tLOW:tHIGH proportion of the clock's period
@@ -244,13 +238,6 @@ def counted_clock(lim: OpenDrainLimits, clock: float, t_low, t_high):
         t_low = t_low if t_low is not None else max(lim.t_low, lim.t_low * share)
         t_high = t_high if t_high is not None else max(lim.t_high, lim.t_high * share)
     return t_low, t_high
-
-
-def worst_per_row(margins: np.ndarray) -> tuple[list[float], list[int]]:
-    """Per row of a ``(rows, corners)`` array of margins: the smallest (NaN counted as
-    the worst) and its corner. [1]"""
-    idx = np.argmin(np.where(np.isnan(margins), -np.inf, margins), axis=1)
-    return margins[np.arange(margins.shape[0]), idx].tolist(), idx.tolist()
 
 
 def data_sources(index: int, ctrl_seg: int, segments: list[tuple[int, Segment]],
