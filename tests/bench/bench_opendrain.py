@@ -1,21 +1,18 @@
-"""od-one-bus: the open-drain array engine at one variant against the one-bus engine.
+"""od-one-bus: the open-drain engine at one bus against what gathering its inputs costs.
 
-Issue 12 routes :func:`pinlib.engines.opendrain.evaluate_bus` through the array engine
-(:func:`pinlib.engines.opendrain.batch.build`) at N = 1; it may do so only if that costs
-no more than the one-bus path does today.  This bench times, on every open-drain bus
-of the demo, the translator-and-cable test design and the two what-if golden designs:
+Issue 12 routed :func:`pinlib.engines.opendrain.evaluate_bus` through the array engine
+(:func:`pinlib.engines.opendrain.batch.build`) at N = 1, with the wording drawn from the
+arrays, and removed the scalar one-bus checks; it might do so only if that costs no more
+than the scalar engine did.  This bench times, on every open-drain bus of the demo, the
+translator-and-cable test design and the two what-if golden designs, in turn, run by run,
+in the same process (the shared machine's speed drifts), and compares medians:
 
-- the array path: the inputs gathered once (``collect``), then ``build`` at the
-  engine's corners (``WorstCase(1)``) on them;
-- the baseline: ``evaluate_bus`` (the inputs gathered, every check with its wording).
-
-The two are timed in turn, run by run, in the same process (the shared machine's speed
-drifts), and the medians compared: a ratio at or below 1 meets the target.
-
-A second line times ``evaluate_bus`` against ``collect`` alone (the gathering both
-engines pay) in turn and compares that ratio with :data:`SCALAR_BASELINE`, the same
-ratio of the scalar one-bus engine measured before it was removed: the in-process
-``collect`` makes the two comparable across machines and loads.
+- ``evaluate_bus`` against ``collect`` alone (the gathering every path pays): that ratio
+  against :data:`SCALAR_BASELINE`, the same ratio of the scalar engine measured before
+  it was removed (the in-process ``collect`` makes the two comparable across machines
+  and loads); at or below it meets the target;
+- the array path alone (``collect``, then ``build`` at the engine's corners on it)
+  against ``evaluate_bus``: what the wording costs on top, for information.
 """
 
 from __future__ import annotations
@@ -88,12 +85,10 @@ def run(repeats: int = 40, quick: bool = False) -> list[Result]:
             opendrain.collect(bus, design)
 
     n = max(repeats, 10 if quick else 40)
-    t_arrays, t_one, t_collect = _in_turn((arrays, one_bus, gather), n)
-    ratio = t_arrays / t_one
+    t_one, t_collect, t_arrays = _in_turn((one_bus, gather, arrays), n)
     per_collect = t_one / t_collect
-    return [Result(f"od-one-bus: {len(buses)} open-drain buses, array engine at N=1",
-                   t_arrays, "evaluate_bus", t_one, ratio, "of the one-bus engine's time",
-                   target="<= 1", passed=ratio <= 1.0),
-            Result("od-one-bus: evaluate_bus / collect", t_one, "collect", t_collect,
+    return [Result("od-one-bus: evaluate_bus / collect", t_one, "collect", t_collect,
                    per_collect, f"of collect's time (scalar engine {SCALAR_BASELINE:g}x)",
-                   target=f"<= {SCALAR_BASELINE:g}", passed=per_collect <= SCALAR_BASELINE)]
+                   target=f"<= {SCALAR_BASELINE:g}", passed=per_collect <= SCALAR_BASELINE),
+            Result(f"od-one-bus: {len(buses)} buses, arrays without wording", t_arrays,
+                   "evaluate_bus", t_one, t_arrays / t_one, "of evaluate_bus's time")]
