@@ -231,10 +231,14 @@ class _Out:
 def _cells(x, k: int) -> list:
     """One variant's value of a row (a number, None for no given margin, or an array
     of one value or one per corner) over ``k`` corners. [unit]"""
+    t = type(x)
+    if t is float:
+        return [x] * k
     if x is None:
         return [0.0] * k
-    if type(x) is float:
-        return [x] * k
+    if t is np.ndarray and x.dtype == np.float64:
+        cells = x.ravel().tolist()
+        return cells if len(cells) == k else cells * k  # one value: the same at each
     a = np.asarray(x, dtype=float).reshape(-1)
     return a.tolist() if a.size == k else [a.item()] * k
 
@@ -271,24 +275,25 @@ def _finish_one(pending, rows) -> None:
     """:meth:`_Out.finish` for one variant, in plain Python over the few numbers (the
     margins as :func:`_margins` works them out); each check's columns are views of a
     few arrays made once for the segment."""
-    m, v, lim = [], [], []
-    for p in pending:
-        for j in range(p.r0, p.r1):
-            cells = [_cells(x, p.k) for x in rows[j]]
-            v.append(cells[0])
-            lim.append(cells[1])
-            m.append([_margin(*c) for c in zip(*cells, strict=True)])
     nums, codes, where = [], [], []
     for p in pending:
+        k, m, v, lim = p.k, {}, {}, {}
         best, worst_of = None, []
         for j in range(p.r0, p.r1):
+            value, limit, sense, given = rows[j]
+            v[j], lim[j] = vs, ls = _cells(value, k), _cells(limit, k)
+            if type(sense) is float and sense != 0:
+                m[j] = ms = [_margin(vs[c], ls[c], sense, 0.0) for c in range(k)]
+            else:
+                m[j] = ms = [_margin(*cell) for cell in zip(vs, ls, _cells(sense, k),
+                                                            _cells(given, k), strict=True)]
             row_best = None
-            for c in range(p.k):
-                x = m[j][c]
+            for c in range(k):
+                x = ms[c]
                 key = -math.inf if x != x else x
                 if row_best is None or key < row_best[0]:
                     row_best = (key, c)
-            worst_of.append(m[j][row_best[1]])
+            worst_of.append(ms[row_best[1]])
             if best is None or row_best[0] < best[0]:
                 best = (row_best[0], j, row_best[1])
         _, j, c = best
