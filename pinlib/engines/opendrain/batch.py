@@ -1,20 +1,23 @@
 """The open-drain engine's checks, vectorized over a batch of variants of one bus.
 
-:func:`pinlib.engines.opendrain.evaluate_bus` evaluates one bus at its worst-case corners
-and explains every figure.  Studies over many variants of a bus — Monte Carlo samples and corners of
-its toleranced parameters (:mod:`pinlib.studies.whatif`), or every library part that could
-stand in one position (:mod:`pinlib.studies.candidates`) — need the same numbers for thousands
-of variants at once.  :func:`build` computes them in one numpy pass per bus: the
-*structure* of the bus (which pins drive and which receive, which part pull-ups exist)
-is fixed for a batch; every *value* may be an array over the batch.
+Every check of the engine is made here.  :func:`pinlib.engines.opendrain.evaluate_bus`
+evaluates one bus at its worst-case corners: :func:`run` at one variant (:class:`WorstCase`
+``(1)``, on the inputs :func:`.inputs.collect` gathered), whose checks :mod:`.wording`
+and :mod:`.wording_segment` word.  Studies over many variants of a bus — Monte Carlo
+samples and corners of its toleranced parameters (:mod:`pinlib.studies.whatif`), or every
+library part that could stand in one position (:mod:`pinlib.studies.candidates`) — need
+the same numbers for thousands of variants at once.  :func:`build` computes them in one
+numpy pass per bus: the *structure* of the bus (which pins drive and which receive,
+which part pull-ups exist) is fixed for a batch; every *value* may be an array over the
+batch.  At one variant the margins, worst rows and figures are worked out in plain
+Python over the few numbers (:mod:`.batchresult`, :mod:`.batchfigures`); the tests hold
+that to the arrays of several variants.
 
-It shares the one-bus engine's rules and arithmetic (:mod:`.inputs`, :mod:`.arith`,
-:func:`.bridges.gate_drive`) and makes the same checks in the same order, without the
-messages (each check names its rows and keeps, per variant, the row and rail corner
-of its worst: :meth:`BatchCheck.worst`), so that each
-variant's margins are the engine's; the tests hold it to that (a batch of candidates
-against :func:`pinlib.engines.dispatch.check_design` of each substituted design, and samples of a
-design without tolerances against its engine result).
+Each check names its rows and keeps, per variant, the row and rail corner of its worst
+(:meth:`BatchCheck.worst`) and what its wording needs beyond its numbers
+(:attr:`BatchCheck.basis`); the tests hold a batch of candidates against
+:func:`pinlib.engines.dispatch.check_design` of each substituted design, and samples of a
+design without tolerances against its engine result.
 
 A :class:`Scenario` says what varies.  :class:`WorstCase` takes the engine's corners
 (each rail at ± its tolerance, the pull-ups at the end that hurts each check,
