@@ -212,7 +212,7 @@ def _all_finite(xs: list, positive: bool) -> bool:
     (above 0 with ``positive``); a plain number is looked at without numpy."""
     arrays = []
     for x in xs:
-        if type(x) is float:
+        if isinstance(x, float):  # a Python or numpy number
             if not (0.0 < x < math.inf if positive else 0.0 <= x < math.inf):  # NaN fails
                 return False
         else:

@@ -180,10 +180,10 @@ class _Out:
         (:attr:`BatchCheck.row_margins`).  Returns the check (filled by :meth:`finish`)."""
         chk = BatchCheck(id, self.seg_id, signal, None, None, None, None, unit, names=names)
         self.checks.append(chk)
-        k = _corners(rows)
+        k = _corners(rows) if self.n > 1 else 0  # at one variant: found in _finish_one
         r0 = len(self._rows)
         self._rows.extend(rows)
-        single = len(rows) == 1 and k == 1 and not isinstance(warn, (list, tuple))
+        single = len(rows) == 1 and k <= 1 and not isinstance(warn, (list, tuple))
         self._pending.append(_Pending(chk, r0, len(self._rows), k, warn, per_row, single))
         return chk
 
@@ -196,7 +196,7 @@ class _Out:
         (NaN counted as the worst margin; the first of equal margins)."""
         if self._pending and self.n == 1:
             _finish_one(self._pending, self._rows)
-        elif self._pending:
+        elif self._pending:  # the number of corners of every check is known
             n, rows = self.n, self._rows
             k = max(p.k for p in self._pending)
             # (value, limit, sense, given margin) × variant × row × corner, filled by
@@ -228,19 +228,17 @@ class _Out:
         self.add(id, signal, None, None, None, np.where(np.asarray(ok), 0, 2))
 
 
-def _cells(x, k: int) -> list:
+def _cells(x) -> list:
     """One variant's value of a row (a number, None for no given margin, or an array
-    of one value or one per corner) over ``k`` corners. [unit]"""
+    of one value or one per corner) as a list: one value, or one per corner. [unit]"""
     t = type(x)
     if t is float:
-        return [x] * k
+        return [x]
     if x is None:
-        return [0.0] * k
+        return [0.0]
     if t is np.ndarray and x.dtype == np.float64:
-        cells = x.ravel().tolist()
-        return cells if len(cells) == k else cells * k  # one value: the same at each
-    a = np.asarray(x, dtype=float).reshape(-1)
-    return a.tolist() if a.size == k else [a.item()] * k
+        return x.ravel().tolist()
+    return np.asarray(x, dtype=float).reshape(-1).tolist()
 
 
 def _margins(buf):
@@ -277,16 +275,18 @@ def _finish_one(pending, rows) -> None:
     few arrays made once for the segment."""
     nums, codes, where = [], [], []
     for p in pending:
-        k, m, v, lim = p.k, {}, {}, {}
+        # each row's cells as they come (one value, or one per corner), then the
+        # check's number of corners: the most any cell has (as _corners for many)
+        raw = [[_cells(x) for x in rows[j]] for j in range(p.r0, p.r1)]
+        k = max(len(c) for cells in raw for c in cells)
+        p.k, p.single = k, p.single and k == 1
+        m, v, lim = {}, {}, {}
         best, worst_of = None, []
-        for j in range(p.r0, p.r1):
-            value, limit, sense, given = rows[j]
-            v[j], lim[j] = vs, ls = _cells(value, k), _cells(limit, k)
-            if type(sense) is float and sense != 0:
-                m[j] = ms = [_margin(vs[c], ls[c], sense, 0.0) for c in range(k)]
-            else:
-                m[j] = ms = [_margin(*cell) for cell in zip(vs, ls, _cells(sense, k),
-                                                            _cells(given, k), strict=True)]
+        for j, (vs, ls, ss, gs) in enumerate(raw, p.r0):
+            if k > 1:
+                vs, ls, ss, gs = (c if len(c) == k else c * k for c in (vs, ls, ss, gs))
+            v[j], lim[j] = vs, ls
+            m[j] = ms = [_margin(vs[c], ls[c], ss[c], gs[c]) for c in range(k)]
             row_best = None
             for c in range(k):
                 x = ms[c]
