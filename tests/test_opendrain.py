@@ -871,62 +871,124 @@ _FIGURE_DESIGNS = (
 )
 
 
+def _batch_number(x, i: int = 0):
+    """Variant ``i``'s value of a batch column, with the batch's forms of "no number"
+    (NaN, infinity) as the result writes them (None)."""
+    if x is None:
+        return None
+    v = float(x[i])
+    return v if math.isfinite(v) else None
+
+
 @pytest.mark.parametrize("path, folders", _FIGURE_DESIGNS, ids=lambda x: getattr(x, "stem", ""))
-def test_batch_reports_every_figure_of_the_one_bus_result(path, folders):
-    from pinlib.engines.opendrain.batch import WorstCase, build
+def test_batch_at_one_variant_and_at_many_gives_the_same_numbers(path, folders):
+    """evaluate_bus takes its numbers from the array engine at one variant, worked out
+    in plain Python; a batch of several variants works them out over numpy arrays.
+    Three copies of the design must each give the result's every check and figure."""
+    from pinlib.engines.opendrain.batch import STATUS, WorstCase, build
 
     d = load_design(path, library_folders=folders)
     buses = [b for b in d.buses if b.protocol in ("i2c", "smbus")]
     assert buses
     for bus in buses:
         res = opendrain.evaluate_bus(bus, d)
-        batch = build(bus, d, WorstCase(1))
+        one = build(bus, d, WorstCase(1))
+        many = build(bus, d, WorstCase(3))
         groups = res.segments or [res]
-        assert len(groups) == len(batch.segments)
-        for g, sb in zip(groups, batch.segments, strict=True):
+        assert len(groups) == len(many.segments) == len(one.segments)
+        for g, sb1, sb in zip(groups, one.segments, many.segments, strict=True):
+            assert [c.id for c in g.checks] == [c.id for c in sb.checks]
             assert set(sb.figures) == set(g.figures)
-            for name, fig in g.figures.items():
-                got = sb.figures[name]
-                if fig.value is None:
-                    assert got is None, name
-                    continue
-                # derived: the array path at the engine's corners equals the one-bus path
-                assert float(got[0]) == pytest.approx(fig.value, rel=1e-12, abs=0), name
+            for i in range(3):
+                for name, fig in g.figures.items():
+                    got = sb.figures[name]
+                    if fig.value is None:
+                        assert got is None, name
+                        continue
+                    # derived: the same figure over arrays as in plain Python
+                    assert float(got[i]) == pytest.approx(fig.value, rel=1e-12, abs=0), name
+                for res_chk, c1, arr in zip(g.checks, sb1.checks, sb.checks, strict=True):
+                    key = (res_chk.id, res_chk.subject)
+                    assert STATUS[int(arr.status[i])] == res_chk.status, key
+                    assert arr.worst(i) == c1.worst(), key  # the same row and corner
+                    if isinstance(res_chk.value, bool):
+                        assert arr.value is None and arr.margin is None
+                        continue
+                    for mine, theirs in ((res_chk.value, arr.value), (res_chk.limit, arr.limit),
+                                         (res_chk.margin, arr.margin)):
+                        got = _batch_number(theirs, i)
+                        assert (got is None) == (mine is None), key
+                        if got is not None:
+                            # derived: numpy's margins and worst against plain Python's
+                            assert got == pytest.approx(mine, rel=1e-12, abs=0), key
 
 
-def _batch_number(x):
-    """A batch column's one value, with the batch's forms of "no number" (NaN, infinity)
-    as the one-bus result writes them (None)."""
-    if x is None:
+#: Checks of ``value <= limit`` (margin (limit − value)/|limit|) and of ``value >= limit``
+#: (margin (value − limit)/|limit|); pullup-window is either, as its message says.
+_AT_MOST = ("bus-capacitance", "rise-time", "v-ol", "sink-current", "fall-time",
+            "input-voltage", "scl-frequency", "device-speed", "bridge-offset")
+_AT_LEAST = ("noise-margin-low", "noise-margin-high", "v-oh", "fall-time-min", "setup-time")
+
+
+def _line_numbers(chk, seg_in):
+    """The value a line's check must have, from the gathered inputs and the textbook
+    formula (None where the check's value is not one of these)."""
+    up = (chk.subject or "").split(" ")[0]
+    if up not in ("SDA", "SCL"):
         return None
-    v = float(x[0])
-    return v if math.isfinite(v) else None
+    ln = seg_in.lines[up.lower()]
+    tol = seg_in.tol
+    # derived from the parallel resistors 1/R = 1/Rdesign + 1/Rparts (inf: none)
+    r_eff = 1.0 / (1.0 / seg_in.pullup + (0.0 if math.isinf(ln.r_parts) else 1.0 / ln.r_parts))
+    if chk.id == "bus-capacitance":
+        return [ln.cb]  # derived: the sum of its parts, each at its maximum
+    if chk.id == "pullup-window":
+        return [r_eff * (1 - tol), r_eff * (1 + tol)]  # derived: the tolerance ends
+    if chk.id == "rise-time":
+        # derived from UM10204 rev. 6 §7.1 eq. 1: tr = factor · Rp · Cb, Rp at +tol
+        return [ln.rise_factor * r_eff * (1 + tol) * ln.cb]
+    if chk.id == "v-oh":
+        # derived: the rail (either corner) less the leakage's drop across Rp at +tol
+        return [float(v) - ln.leakage * r_eff * (1 + tol) for v in seg_in.vdd]
+    return None
 
 
 @pytest.mark.parametrize("path, folders", _FIGURE_DESIGNS, ids=lambda x: getattr(x, "stem", ""))
-def test_batch_at_the_engine_corners_makes_every_check_of_the_one_bus_result(path, folders):
-    from pinlib.engines.opendrain.batch import STATUS, WorstCase, build
-
+def test_one_bus_numbers_hold_to_their_formulas(path, folders):
+    """Every check's margin and status follow from its value and limit, and a line's
+    capacitance, window, rise time and high level are their textbook formulas over the
+    gathered inputs (not the array engine's own arithmetic)."""
     d = load_design(path, library_folders=folders)
+    seen = set()
     for bus in (b for b in d.buses if b.protocol in ("i2c", "smbus")):
         res = opendrain.evaluate_bus(bus, d)
-        groups = res.segments or [res]
-        batch = build(bus, d, WorstCase(1))
-        for g, sb in zip(groups, batch.segments, strict=True):
-            assert [c.id for c in g.checks] == [c.id for c in sb.checks]
-            for one, arr in zip(g.checks, sb.checks, strict=True):
-                # derived: the same rule over the same corners gives the same status and
-                # numbers (a yes/no check carries no number in the batch)
-                assert STATUS[int(arr.status[0])] == one.status, (one.id, one.subject)
-                if isinstance(one.value, bool):
-                    assert arr.value is None and arr.margin is None
+        lim, seg_ins = opendrain.collect(bus, d)
+        for g, seg_in in zip(res.segments or [res], seg_ins, strict=True):
+            # derived: the bus's clock, the mode's maximum where it states none
+            clock = bus.clock if bus.clock is not None else lim.f_max
+            assert g.check("scl-frequency").value == pytest.approx(clock, rel=1e-12, abs=0)
+            for c in g.checks:
+                key = (c.id, c.subject)
+                want = _line_numbers(c, seg_in)
+                if want is not None:
+                    assert any(c.value == pytest.approx(x, rel=1e-12, abs=0) for x in want), (
+                        key, c.value, want)
+                    seen.add(c.id)
+                if c.margin is None or c.margin_unit is not None or c.limit in (None, 0.0):
                     continue
-                for mine, theirs in ((one.value, arr.value), (one.limit, arr.limit),
-                                     (one.margin, arr.margin)):
-                    got = _batch_number(theirs)
-                    assert (got is None) == (mine is None), (one.id, one.subject)
-                    if got is not None:
-                        assert got == pytest.approx(mine, rel=1e-12, abs=0), (one.id, one.subject)
+                at_most = c.id in _AT_MOST or (c.id == "pullup-window" and " at +" in c.message)
+                at_least = c.id in _AT_LEAST or (c.id == "pullup-window" and " at −" in c.message)
+                if c.id == "supply-range":
+                    at_most = "allows" in c.message
+                    at_least = not at_most
+                assert at_most != at_least, key
+                # derived: the relative margin of a maximum or a minimum
+                m = ((c.limit - c.value) if at_most else (c.value - c.limit)) / abs(c.limit)
+                assert c.margin == pytest.approx(m, rel=1e-12, abs=1e-15), key
+                # derived: a negative margin fails, a positive one does not
+                assert (c.status == "fail") == (m < 0), key
+    # common practice, no source: the designs exercise each formula above
+    assert seen == {"bus-capacitance", "pullup-window", "rise-time", "v-oh"}
 
 
 #: Checks whose subject names the element (receiver, driver, device) they compare; a

@@ -8,10 +8,11 @@
    none), the bus capacitance (pins, traces, cables, extra), the leakage, the pull-ups
    the parts carry — and the window Rp(min)..Rp(max).  It picks the pull-up
    (``pullup = "auto"``) or takes the design's.
-2. With every segment's pull-up known (a pass-transistor translator joins two), it
-   evaluates each line at the worst corners: pull-up at ± its tolerance, the rail at ±
-   its tolerance, capacitances at their stored maxima; then the segment's timing,
-   voltage-domain, power-state and bridging-part checks.
+2. With every segment's pull-up known (a pass-transistor translator joins two), the
+   array engine (:mod:`.batch`, at one variant) evaluates each line at the worst
+   corners: pull-up at ± its tolerance, the rail at ± its tolerance, capacitances at
+   their stored maxima; then the segment's timing, voltage-domain, power-state and
+   bridging-part checks; :mod:`.wording_segment` words them.
 
 Worst cases are taken over the two corners of the pull-up rail (``VDD·(1 − tol)`` and
 ``VDD·(1 + tol)``).  A device on the pull-up rail follows it (its relative thresholds
@@ -31,18 +32,21 @@ The package:
   delays, the controller's segment, the SCL times it counts, who sets SDA, a rail
   against a supply range;
 - :mod:`.arith`: shape-agnostic line arithmetic (low levels, fall-time bounds);
-- :mod:`.checks` and :mod:`.bridges`: pass 2 for one bus, with messages and fixes;
-- :mod:`.explain`: advice for a failing window, a segment's figures and notes;
-- :mod:`.batchinputs`, :mod:`.batchresult` and :mod:`.batch`: the same checks over
-  arrays of variants (Monte Carlo, corners, candidate parts), without messages; each
-  check keeps the row and rail corner of its worst; at the design's own corners
-  :mod:`.batchgathered` takes the lines from :func:`collect` (one gathering).
+  :mod:`.bridges`: the gate-drive rule of pass transistors;
+- :mod:`.batchinputs`, :mod:`.batchresult`, :mod:`.batchfigures` and :mod:`.batch`:
+  pass 2, every check over arrays of variants (one for :func:`evaluate_bus`; Monte
+  Carlo, corners, candidate parts), without messages; each check keeps the row and rail
+  corner of its worst and what its wording needs; at the design's own corners
+  :mod:`.batchgathered` takes the lines from :func:`collect` (one gathering);
+- :mod:`.wording` (a line's checks) and :mod:`.wording_segment` (a segment's figures,
+  checks and notes): messages, fixes, subjects and details of the batch's checks at one
+  variant, with the labels and sources of the gathered inputs;
+- :mod:`.explain`: advice for a failing window, the sink model, a segment's notes.
 """
 
 from __future__ import annotations
 
-from pinlib.core.errors import DesignError, InputError
-from pinlib.engines.opendrain.checks import Context, evaluate_segment
+from pinlib.engines.opendrain.batch import WorstCase, run
 from pinlib.engines.opendrain.inputs import (
     LineInputs,
     SegmentInputs,
@@ -54,6 +58,7 @@ from pinlib.engines.opendrain.rules import (
     GATE_OVERDRIVE,
     SIGNALS,
 )
+from pinlib.engines.opendrain.wording_segment import segment
 from pinlib.model.design import Bus, Design
 from pinlib.model.result import BusResult, SegmentResult
 from pinlib.physics.pullup import Budget, budget, capacitance_from_rise
@@ -94,16 +99,11 @@ def evaluate_bus(bus: Bus, design: Design) -> BusResult:
         When the bus cannot be evaluated (an SMBus rail below its rise-time point).
     """
     lim, seg_ins = collect(bus, design)
-    ctx = Context(bus, design, lim, seg_ins)
+    ctx, batch = run(bus, design, WorstCase(1), collected=(lim, seg_ins), name_segments=True)
+    ctx.collected = seg_ins
+    ctx.devices = {d.ref: d for s in seg_ins for d in s.segment.devices}
     result = BusResult(id=bus.id, protocol=bus.protocol, workings=(lim, seg_ins))
-    groups = []
-    for s in seg_ins:
-        try:
-            groups.append(evaluate_segment(ctx, s))
-        except InputError as exc:  # a value the physics refuses: name the segment
-            raise DesignError(exc.problem, field=f"bus {bus.id} segment {s.segment.id}"
-                              + (f": {exc.field}" if exc.field else ""), value=exc.value,
-                              expected=exc.expected) from None
+    groups = [segment(ctx, s, sb) for s, sb in zip(seg_ins, batch.segments, strict=True)]
     head = f"{lim.label}, clock {_f(ctx.clock, 'Hz')}"
     if len(bus.controllers) > 1:
         head += (f"; {len(bus.controllers)} controllers: timing from {ctx.controller.ref}")

@@ -118,7 +118,7 @@ def output_fall(lim, d, cb, v, link, rp_lo):
     why = ""
     for cond, reason in checks:
         ok = ok & cond
-        if not why and not np.all(cond):
+        if not why and not cond.all():
             why = reason
     return np.where(ok, t, np.inf), kind, why
 

@@ -1,20 +1,23 @@
 """The open-drain engine's checks, vectorized over a batch of variants of one bus.
 
-:func:`pinlib.engines.opendrain.evaluate_bus` evaluates one bus at its worst-case corners
-and explains every figure.  Studies over many variants of a bus — Monte Carlo samples and corners of
-its toleranced parameters (:mod:`pinlib.studies.whatif`), or every library part that could
-stand in one position (:mod:`pinlib.studies.candidates`) — need the same numbers for thousands
-of variants at once.  :func:`build` computes them in one numpy pass per bus: the
-*structure* of the bus (which pins drive and which receive, which part pull-ups exist)
-is fixed for a batch; every *value* may be an array over the batch.
+Every check of the engine is made here.  :func:`pinlib.engines.opendrain.evaluate_bus`
+evaluates one bus at its worst-case corners: :func:`run` at one variant (:class:`WorstCase`
+``(1)``, on the inputs :func:`.inputs.collect` gathered), whose checks :mod:`.wording`
+and :mod:`.wording_segment` word.  Studies over many variants of a bus — Monte Carlo
+samples and corners of its toleranced parameters (:mod:`pinlib.studies.whatif`), or every
+library part that could stand in one position (:mod:`pinlib.studies.candidates`) — need
+the same numbers for thousands of variants at once.  :func:`build` computes them in one
+numpy pass per bus: the *structure* of the bus (which pins drive and which receive,
+which part pull-ups exist) is fixed for a batch; every *value* may be an array over the
+batch.  At one variant the margins, worst rows and figures are worked out in plain
+Python over the few numbers (:mod:`.batchresult`, :mod:`.batchfigures`); the tests hold
+that to the arrays of several variants.
 
-It shares the one-bus engine's rules and arithmetic (:mod:`.inputs`, :mod:`.arith`,
-:func:`.bridges.gate_drive`) and makes the same checks in the same order, without the
-messages (each check names its rows and keeps, per variant, the row and rail corner
-of its worst: :meth:`BatchCheck.worst`), so that each
-variant's margins are the engine's; the tests hold it to that (a batch of candidates
-against :func:`pinlib.engines.dispatch.check_design` of each substituted design, and samples of a
-design without tolerances against its engine result).
+Each check names its rows and keeps, per variant, the row and rail corner of its worst
+(:meth:`BatchCheck.worst`) and what its wording needs beyond its numbers
+(:attr:`BatchCheck.basis`); the tests hold a batch of candidates against
+:func:`pinlib.engines.dispatch.check_design` of each substituted design, and samples of a
+design without tolerances against its engine result.
 
 A :class:`Scenario` says what varies.  :class:`WorstCase` takes the engine's corners
 (each rail at ± its tolerance, the pull-ups at the end that hurts each check,
@@ -28,11 +31,14 @@ second axis holds the rail corners (two for :class:`WorstCase`, one for a sample
 
 from __future__ import annotations
 
+import math
 from collections.abc import Sequence
 
 import numpy as np
 
+from pinlib.core.errors import DesignError, InputError
 from pinlib.engines.opendrain.arith import fall_bounds, far_drivers, low_levels
+from pinlib.engines.opendrain.batchfigures import _figures, _one, _reduce
 from pinlib.engines.opendrain.batchgathered import line_from
 from pinlib.engines.opendrain.batchinputs import (
     Level,
@@ -60,7 +66,6 @@ from pinlib.engines.opendrain.batchresult import (
     le,
 )
 from pinlib.engines.opendrain.bridges import gate_drive
-from pinlib.engines.opendrain.explain import _WORST
 from pinlib.engines.opendrain.inputs import (
     _offset_side,
     collect,
@@ -101,7 +106,8 @@ _NOT_RECEIVERS = ("connector", "cable")
 
 def _worst_max(x):
     """Largest over the corner axis. [unit]"""
-    return np.max(x, axis=1, keepdims=True)
+    return x.max(axis=1, keepdims=True) if type(x) is np.ndarray else \
+        np.max(x, axis=1, keepdims=True)
 
 
 def _far(s: _Seg, segs: list[_Seg], links: list[_Link], signal: str):
@@ -123,10 +129,12 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     phys = unchecked if _in_domain(ctx, ln, v, rp_lo, rp_hi, far) else pu
     # the end nearer its bound, by pullup.pullup_margins' two ratios (its inputs are
     # the gathering's): Rp(min) below (>=), Rp(max) above (<=)
-    low = rp_lo / ln.rp_min - 1.0 <= 1.0 - rp_hi / ln.rp_max
+    m_lo, m_hi = rp_lo / ln.rp_min - 1.0, 1.0 - rp_hi / ln.rp_max
+    low = m_lo <= m_hi
     out.pick("pullup-window", up, [(np.where(low, rp_lo, rp_hi),
                                     np.where(low, ln.rp_min, ln.rp_max),
-                                    np.where(low, -1.0, 1.0), None)], warn, "Ω")
+                                    np.where(low, -1.0, 1.0), None)], warn, "Ω").basis = \
+        (m_lo, m_hi)
     tr = phys.rise_time(rp_hi, ln.cb, ln.rise_factor)
     f["rise_time"] = tr
     f["rise_time_10_90"] = phys.rise_time(rp_hi, ln.cb, RISE_10_90)
@@ -136,8 +144,12 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     levels = [(vb, i, d if link is None else None) for vb, i, d, link in raw]
     f["v_ol"] = None
     if levels:
-        shape = np.broadcast_shapes(*[lv[0].shape for lv in levels])
-        stacked = np.stack([np.broadcast_to(lv[0], shape) for lv in levels])
+        shapes = {lv[0].shape for lv in levels}
+        if len(shapes) == 1:  # the usual case: no broadcasting needed
+            stacked = np.stack([lv[0] for lv in levels])
+        else:
+            shape = np.broadcast_shapes(*shapes)
+            stacked = np.stack([np.broadcast_to(lv[0], shape) for lv in levels])
         vol_bus = np.max(stacked, axis=0)
         f["v_ol"] = _worst_max(vol_bus)
         if ln.receivers:
@@ -157,7 +169,7 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     if levels or offset_levels:
         rows = [(i, d) for _, i, d in levels + offset_levels if d is not None]
         if rows:
-            _sink_check(ctx, out, up, rows)
+            _sink_check(ctx, out, up, rows).basis = [_index(ln.drivers, d) for _, d in rows]
         f["pullup_power"] = _reduce(np.max, [_worst_max(v * (v - lv[0]) / rp_lo)
                                              for lv in levels + offset_levels])
     # -- high level
@@ -173,7 +185,7 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             limit = lim.v_nh_rel * v
             nh = out.pick("noise-margin-high", up, [ge(nmh, limit)], warn, "V")
             f["noise_margin_high"] = lambda: nh.value[:, None]  # as noise_margin_low
-    _fall_checks(ctx, ln, out, f, rp_lo, v, far, phys)
+    _fall_checks(ctx, s.index, ln, out, f, rp_lo, v, far, phys)
 
 
 def _in_domain(ctx, ln: _Line, v, rp_lo, rp_hi, far) -> bool:
@@ -192,15 +204,32 @@ def _in_domain(ctx, ln: _Line, v, rp_lo, rp_hi, far) -> bool:
     for d, link, _, _ in far_drivers(far, ctx.segs, ln.signal):  # their fall bounds
         at_least_0.append(d.r_series + link.r_on)
         above_0 += [d.v_ol, d.i_ol]
-    a = np.concatenate([np.ravel(x) for x in at_least_0])
-    b = np.concatenate([np.ravel(x) for x in above_0])
-    return bool(np.isfinite(a).all() and (a >= 0).all() and np.isfinite(b).all()
-                and (b > 0).all())
+    return _all_finite(at_least_0, False) and _all_finite(above_0, True)
 
 
-def _sink_check(ctx, out: _Out, up: str, rows: list) -> None:
+def _all_finite(xs: list, positive: bool) -> bool:
+    """Whether every value of ``xs`` (numbers or arrays) is finite and at or above 0
+    (above 0 with ``positive``); a plain number is looked at without numpy."""
+    arrays = []
+    for x in xs:
+        if isinstance(x, float):  # a Python or numpy number
+            if not (0.0 < x < math.inf if positive else 0.0 <= x < math.inf):  # NaN fails
+                return False
+        else:
+            arrays.append(np.ravel(x))
+    if not arrays:
+        return True
+    a = np.concatenate(arrays)
+    return bool(np.isfinite(a).all() and ((a > 0) if positive else (a >= 0)).all())
+
+
+def _sink_check(ctx, out: _Out, up: str, rows: list) -> BatchCheck:
     """sink-current: each driver's largest current against its IOL (``rows`` of
     (current, driver)); the worst is the driver nearest (or furthest over) its IOL."""
+    if ctx.n == 1:
+        sc = _sink_check_one(ctx, out, up, rows)
+        if sc is not None:
+            return sc
     currents, iols = np.empty((2, ctx.n, len(rows)))  # variant × driver
     for j, (i, d) in enumerate(rows):
         currents[:, j] = _worst_max(i)[:, 0]
@@ -214,6 +243,28 @@ def _sink_check(ctx, out: _Out, up: str, rows: list) -> None:
     def rows_of():
         sc.row, sc.row_values = k[:, 0], currents
     out.after(rows_of)
+    return sc
+
+
+def _sink_check_one(ctx, out: _Out, up: str, rows: list) -> BatchCheck | None:
+    """:func:`_sink_check` at one variant in plain Python (None where a rating is not a
+    positive finite number: the arrays then give the same answer as for many)."""
+    currents = [float(i.max()) for i, _ in rows]
+    iols = [_one(d.i_ol) for _, d in rows]
+    if not all(0.0 < x < math.inf for x in iols):
+        return None
+    k = 0  # the first largest ratio, NaN counted as the largest (as numpy's argmax)
+    for j in range(1, len(rows)):
+        r, best = currents[j] / iols[j], currents[k] / iols[k]
+        if best == best and (r != r or r > best):
+            k = j
+    sc = out.pick("sink-current", up, [le(currents[k], iols[k])], ctx.warn, "A",
+                  [d.tap.label for _, d in rows])
+
+    def rows_of():
+        sc.row, sc.row_values = np.array([k]), np.array([currents])
+    out.after(rows_of)
+    return sc
 
 
 def _driver_behind(chk, stacked, n: int, names: list) -> None:
@@ -225,7 +276,13 @@ def _driver_behind(chk, stacked, n: int, names: list) -> None:
     chk.by, chk.by_names = by[np.arange(n), corner], names
 
 
-def _fall_checks(ctx, ln: _Line, out: _Out, f: dict, rp_lo, v, far, phys) -> None:
+def _index(items: list, x) -> int:
+    """The position of ``x`` itself in ``items`` (by identity). [1]"""
+    return next(j for j, y in enumerate(items) if y is x)
+
+
+def _fall_checks(ctx, s_index: int, ln: _Line, out: _Out, f: dict, rp_lo, v, far,
+                 phys) -> None:
     """Fall time (each driver's upper bound, the worst named) and tf(min)."""
     lim, warn, up = ctx.lim, ctx.warn, ln.signal.upper()
     bounds = fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far, ctx.segs, ln.signal, phys)
@@ -233,25 +290,20 @@ def _fall_checks(ctx, ln: _Line, out: _Out, f: dict, rp_lo, v, far, phys) -> Non
     if not bounds:
         return
     f["fall_time"] = _reduce(np.max, [_worst_max(t) for t, _, _, _ in bounds])
-    out.pick("fall-time", up, [le(t, lim.tf_max) for t, _, _, _ in bounds], warn, "s",
-             [d.tap.label + ("" if link is None else f" via {link.dev.ref}")
-              for _, d, link, _ in bounds])
+    ft = out.pick("fall-time", up, [le(t, lim.tf_max) for t, _, _, _ in bounds], warn, "s",
+                  [d.tap.label + ("" if link is None else f" via {link.dev.ref}")
+                   for _, d, link, _ in bounds])
+    # per row: what bounds it (arith.fall_bounds' info) and whose driver it is (the
+    # segment and the index among that segment's drivers on this line)
+    ft.basis = [(info, s_index if link is None else link.other,
+                 _index((ln if link is None else ctx.segs[link.other].lines[ln.signal]).drivers,
+                        d)) for _, d, link, info in bounds]
     tf_min = lim.tf_min(np.asarray(v[:, -1:], dtype=float))
     if tf_min is not None:
         for d in ln.drivers:
             t_of = d.tap.pin.t_of_min
             if t_of is not None:
                 out.pick("fall-time-min", up, [ge(t_of, tf_min)], warn, "s", [d.tap.label])
-
-
-def _reduce(fn, arrays):
-    """The element-wise maximum (``fn`` = ``np.max``) or minimum (``np.min``) of arrays
-    that broadcast together, NaN propagated. [unit]"""
-    pair = np.maximum if fn is np.max else np.minimum
-    out = np.asarray(arrays[0], dtype=float)
-    for a in arrays[1:]:
-        out = pair(out, a)
-    return out
 
 
 def _segment_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
@@ -271,12 +323,15 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
     if ctrl is not None:
         td = ctx.parts.timing(ctrl)
         t_low, t_high = td.t_low, td.t_high
+    counted = t_low is None or t_high is None
     t_low, t_high = counted_clock(lim, clock, t_low, t_high)
     tf_scl = figs["scl"]["fall_time"]
     figs["segment"] = {"scl_frequency_effective": pu.scl_frequency(
         t_low, t_high, figs["scl"]["rise_time"], tf_scl if tf_scl is not None else 0.0),
         "sda_setup_margin": None}
-    out.pick("scl-frequency", None, [le(clock, lim.f_max)], 0.0, "Hz")
+    # what the wording names: the SCL times and whether they are counted (none stated)
+    out.pick("scl-frequency", None, [le(clock, lim.f_max)], 0.0, "Hz").basis = {
+        "t_low": t_low, "t_high": t_high, "counted": counted}
     slow = [(ctx.parts.timing(d).f_max, d.ref) for d in seg.devices
             if not d.is_controller and not d.is_bridge and ctx.parts.timing(d).f_max is not None]
     if slow:
@@ -291,10 +346,10 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
     sources = list(data_sources(s.index, ctx.ctrl_seg, [(o.index, o.seg) for o in ctx.segs],
                                 ctrl, ctx.delay, drives_sda))
     if sources:
-        budgets = [t_low - (ctx.parts.timing(d).t_vd_dat + extra) - tr_sda
-                   for d, extra in sources]
-        st = out.pick("setup-time", None, [ge(b, lim.t_su_dat) for b in budgets], warn, "s",
-                      [d.ref for d, _ in sources])
+        tvd = [ctx.parts.timing(d).t_vd_dat + extra for d, extra in sources]
+        st = out.pick("setup-time", None, [ge(t_low - t - tr_sda, lim.t_su_dat) for t in tvd],
+                      warn, "s", [d.ref for d, _ in sources])
+        st.basis = {"t_low": t_low, "t_vd": tvd, "t_r": tr_sda}
         figs["segment"]["sda_setup_margin"] = lambda: st.value - lim.t_su_dat
 
 
@@ -313,7 +368,7 @@ def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
         warns.append(np.where(follows, 0.0, warn))
     if rows:
         out.pick("input-voltage", None, rows, warns, "V", names, per_row=True)
-    rows, seen, names = [], set(), []
+    rows, seen, names, lows = [], set(), [], []
     for t in taps:
         if t.ref in seen:
             continue
@@ -325,9 +380,10 @@ def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
         hi = t.rail.max(axis=1, keepdims=True)
         m, low_side = supply_margin(lo, hi, s_min, s_max)
         names.append(t.label)
+        lows.append(low_side)
         rows.append(given(m, np.where(low_side, lo, hi), np.where(low_side, s_min, s_max)))
-    if rows:
-        out.pick("supply-range", None, rows, 0.0, "V", names)
+    if rows:  # basis: per row, whether the rail's low end is the one nearer its limit
+        out.pick("supply-range", None, rows, 0.0, "V", names).basis = lows
     # -- power states
     for d in seg.devices:
         if not d.switched:
@@ -407,6 +463,22 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
         When the physics refuses a value (the engine raises the same for that
         variant).
     """
+    return run(bus, design, scenario, swap=swap, collected=collected)[1]
+
+
+def run(bus: Bus, design: Design, scenario: Scenario, *,
+        swap: tuple[str, Sequence[Part]] | None = None, collected=None,
+        name_segments: bool = False):
+    """:func:`build`, returning also what the checks were made in (the limits, the
+    segments' joins, the controller and its segment, the clock and the warning
+    threshold: the wording of :func:`pinlib.engines.opendrain.evaluate_bus` reads them).
+    With ``name_segments``, a value the physics refuses while a segment's checks are
+    made raises a DesignError naming the bus and segment (as the engine reports it).
+
+    Returns
+    -------
+    (context, BusBatch)
+    """
     lim, seg_ins = collected if collected is not None else collect(bus, design)
     n = int(scenario.n) if swap is None else len(swap[1])
     parts = _Parts(lim, swap)
@@ -432,8 +504,8 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
         segs.append(s)
     pairs = [(s.index, s.seg) for s in segs]
     joins = links(pairs)
-    if any(ln.kind == "mosfet" for lst in joins.values() for ln in lst):
-        _couple(segs, joins, chooses)
+    if not own and any(ln.kind == "mosfet" for lst in joins.values() for ln in lst):
+        _couple(segs, joins, chooses)  # (at the design's own corners: the gathering's)
     ctx = _Ctx()
     ctx.lim, ctx.segs, ctx.links, ctx.parts, ctx.n = lim, segs, joins, parts, n
     ctx.by_id = {s.seg.id: s for s in segs}
@@ -443,38 +515,23 @@ def build(bus: Bus, design: Design, scenario: Scenario, *,
     ctx.delay = delays(ctx.ctrl_seg, joins)
     result = BusBatch(bus.id, n)
     for s in segs:
-        out = _Out(s.seg.id, n)
-        figs: dict = {}
-        for ln in s.lines.values():
-            _line_checks(ctx, s, ln, out, figs)
-        _segment_checks(ctx, s, out, figs)
-        checks = out.finish()
-        result.segments.append(SegmentBatch(s.seg.id, checks, _figures(s, figs, out)))
-    return result
+        try:
+            result.segments.append(_segment(ctx, s, n))
+        except InputError as exc:  # a value the physics refuses: name the segment
+            if not name_segments:
+                raise
+            raise DesignError(exc.problem, field=f"bus {bus.id} segment {s.seg.id}"
+                              + (f": {exc.field}" if exc.field else ""), value=exc.value,
+                              expected=exc.expected) from None
+    return ctx, result
 
 
-def _figures(s: _Seg, figs: dict, out: _Out) -> dict:
-    """A segment's figures, each an array over the variants: the one-bus engine's (the
-    worse of the two lines, each line's own, the segment's); a figure that is a check's
-    value is asked for once the checks are finished."""
-    for group in figs.values():
-        for name, x in group.items():
-            if callable(x):
-                group[name] = x()
-
-    def col(x):
-        return None if x is None else out._n(np.asarray(x, dtype=float).reshape(-1))
-
-    res = {}
-    for name, pick in _WORST.items():
-        vals = [np.asarray(figs[sig][name], dtype=float).reshape(-1, 1) for sig in SIGNALS
-                if figs[sig].get(name) is not None]
-        res[name] = col(_reduce(np.max if pick is max else np.min, vals)) if vals else None
-    for name in ("bus_capacitance", "rise_time", "fall_time", "pullup"):
-        for sig in SIGNALS:
-            res[f"{name}_{sig}"] = col(figs[sig].get(name))
-    res["supply"] = col(s.seg.supply)
-    res["pullup_resistor"] = col(s.lines["sda"].pullup)
-    res["rise_factor"] = col(s.lines["sda"].rise_factor)
-    res.update({k: col(x) for k, x in figs["segment"].items()})
-    return res
+def _segment(ctx, s: _Seg, n: int) -> SegmentBatch:
+    """Every check and figure of one segment."""
+    out = _Out(s.seg.id, n)
+    figs: dict = {}
+    for ln in s.lines.values():
+        _line_checks(ctx, s, ln, out, figs)
+    _segment_checks(ctx, s, out, figs)
+    checks = out.finish()
+    return SegmentBatch(s.seg.id, checks, _figures(s, figs, out))

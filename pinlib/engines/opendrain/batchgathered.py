@@ -44,8 +44,8 @@ def _pin(t, driver: bool, receiver: bool) -> PinData:
 def line_from(li: LineInputs, seg: Segment, parts: _Parts, scen: Scenario) -> _Line:
     """The batch's line of one variant from a gathered line (rail corners ``(1, 2)``).
 
-    Rp(min) is the segment's own (before the current across pass transistors: the
-    batch joins coupled segments itself)."""
+    Rp(min) is the gathering's, with the current across pass transistors (the pull-ups
+    are the design's as gathered, so the coupling is the gathering's)."""
     drives = {id(d.tap) for d in li.drivers}
     reads = {id(r.tap) for r in li.receivers}
     taps = {}
@@ -57,7 +57,5 @@ def line_from(li: LineInputs, seg: Segment, parts: _Parts, scen: Scenario) -> _L
                        d.r_series, d.offset) for d in li.drivers]
     receivers = [_Receiver(taps[id(r.tap)], r.v_il[None, :], r.v_ih[None, :])
                  for r in li.receivers]
-    rp_min = li.own[0] if li.own is not None else li.rp_min
     return _Line(li.signal, list(taps.values()), li.cb, li.leakage, drivers, receivers,
-                 li.r_parts, rp_min, li.rp_max,
-                 li.rise_factor)
+                 li.r_parts, li.rp_min, li.rp_max, li.rise_factor)

@@ -55,6 +55,16 @@ class BatchCheck:
     by, by_names : numpy.ndarray, list or None
         Where kept (v-ol: the driver whose low level is the bus's), the index into
         ``by_names`` of what is behind the worst value, shape ``(N,)``. [1]
+    basis : Any
+        What a check's wording needs beyond its numbers, where kept: pullup-window
+        (margin to Rp(min), margin to Rp(max)) as :func:`pinlib.physics.pullup.pullup_margins`
+        gives them; sink-current each row's index among its line's drivers; fall-time per
+        row (:func:`.arith.fall_bounds`' info, the driver's segment index, its index among
+        that segment's drivers of the line); scl-frequency a dict of the SCL low and high
+        times and whether they are counted (the controller states none); setup-time a
+        dict of ``t_low``, each row's tVD;DAT with its bridge delays (``t_vd``) and the
+        SDA rise time ``t_r``; supply-range per row whether the rail's low end is the
+        one nearer its limit. [unit]
     """
 
     id: str
@@ -72,6 +82,7 @@ class BatchCheck:
     row_values: Any = None
     by: Any = None
     by_names: Any = None
+    basis: Any = None
 
     def worst(self, i: int = 0) -> tuple[str | None, int | None]:
         """What variant ``i``'s worst came from: the name of its row (None for a check
@@ -136,8 +147,8 @@ class _Pending:
 def _corners(rows) -> int:
     """The number of rail corners of a check's rows (the last axis, broadcast). [1]"""
     k = 1
-    for r in rows:
-        for x in r:
+    for value, limit, _, margin in rows:  # the sense is a number
+        for x in (value, limit, margin):
             shape = getattr(x, "shape", None)  # a Python number or None has none
             if shape and shape[-1] > k:
                 k = shape[-1]
@@ -169,10 +180,10 @@ class _Out:
         (:attr:`BatchCheck.row_margins`).  Returns the check (filled by :meth:`finish`)."""
         chk = BatchCheck(id, self.seg_id, signal, None, None, None, None, unit, names=names)
         self.checks.append(chk)
-        k = _corners(rows)
+        k = _corners(rows) if self.n > 1 else 0  # at one variant: found in _finish_one
         r0 = len(self._rows)
         self._rows.extend(rows)
-        single = len(rows) == 1 and k == 1 and not isinstance(warn, (list, tuple))
+        single = len(rows) == 1 and k <= 1 and not isinstance(warn, (list, tuple))
         self._pending.append(_Pending(chk, r0, len(self._rows), k, warn, per_row, single))
         return chk
 
@@ -183,7 +194,9 @@ class _Out:
     def finish(self) -> list[BatchCheck]:
         """Every recorded check's margin, worst row and corner, value, limit and status
         (NaN counted as the worst margin; the first of equal margins)."""
-        if self._pending:
+        if self._pending and self.n == 1:
+            _finish_one(self._pending, self._rows)
+        elif self._pending:  # the number of corners of every check is known
             n, rows = self.n, self._rows
             k = max(p.k for p in self._pending)
             # (value, limit, sense, given margin) × variant × row × corner, filled by
@@ -195,11 +208,8 @@ class _Out:
                 buf[2, :, j] = sense
                 buf[3, :, j] = 0.0 if m is None else m
             margin = _margins(buf)
-            if n == 1:
-                _finish_one(self._pending, margin[0], buf[0, 0], buf[1, 0])
-            else:
-                for p in self._pending:
-                    _finish_many(p, margin, buf[0], buf[1], n)
+            for p in self._pending:
+                _finish_many(p, margin, buf[0], buf[1], n)
         for fn in self._after:
             fn()
         self._rows, self._pending, self._after = [], [], []
@@ -216,6 +226,19 @@ class _Out:
 
     def truth(self, id, signal, ok):
         self.add(id, signal, None, None, None, np.where(np.asarray(ok), 0, 2))
+
+
+def _cells(x) -> list:
+    """One variant's value of a row (a number, None for no given margin, or an array
+    of one value or one per corner) as a list: one value, or one per corner. [unit]"""
+    t = type(x)
+    if t is float:
+        return [x]
+    if x is None:
+        return [0.0]
+    if t is np.ndarray and x.dtype == np.float64:
+        return x.ravel().tolist()
+    return np.asarray(x, dtype=float).reshape(-1).tolist()
 
 
 def _margins(buf):
@@ -236,32 +259,59 @@ def _status(m: float, warn: float) -> int:
     return 2 if m != m or m < 0 else (1 if m < warn else 0)
 
 
-def _finish_one(pending, margin, value, limit) -> None:
-    """:meth:`_Out.finish` for one variant, in plain Python over the few numbers."""
-    m, v, lim = margin.tolist(), value.tolist(), limit.tolist()
+def _margin(value: float, limit: float, sense: float, given: float) -> float:
+    """:func:`_margins` of one cell, in plain Python (the same IEEE arithmetic). [1]"""
+    if sense == 0:
+        return given
+    excess = limit - value if sense > 0 else value - limit
+    if limit == 0:  # met (+inf) or not (−inf); NaN is not met
+        return math.inf if excess >= 0 else -math.inf
+    return excess / abs(limit)
+
+
+def _finish_one(pending, rows) -> None:
+    """:meth:`_Out.finish` for one variant, in plain Python over the few numbers (the
+    margins as :func:`_margins` works them out); each check's columns are views of a
+    few arrays made once for the segment."""
+    nums, codes, where = [], [], []
     for p in pending:
+        # each row's cells as they come (one value, or one per corner), then the
+        # check's number of corners: the most any cell has (as _corners for many)
+        raw = [[_cells(x) for x in rows[j]] for j in range(p.r0, p.r1)]
+        k = max(len(c) for cells in raw for c in cells)
+        p.k, p.single = k, p.single and k == 1
+        m, v, lim = {}, {}, {}
         best, worst_of = None, []
-        for j in range(p.r0, p.r1):
+        for j, (vs, ls, ss, gs) in enumerate(raw, p.r0):
+            if k > 1:
+                vs, ls, ss, gs = (c if len(c) == k else c * k for c in (vs, ls, ss, gs))
+            v[j], lim[j] = vs, ls
+            m[j] = ms = [_margin(vs[c], ls[c], ss[c], gs[c]) for c in range(k)]
             row_best = None
-            for c in range(p.k):
-                x = m[j][c]
+            for c in range(k):
+                x = ms[c]
                 key = -math.inf if x != x else x
                 if row_best is None or key < row_best[0]:
                     row_best = (key, c)
-            worst_of.append(m[j][row_best[1]])
+            worst_of.append(ms[row_best[1]])
             if best is None or row_best[0] < best[0]:
                 best = (row_best[0], j, row_best[1])
         _, j, c = best
         w = p.warn[j - p.r0] if isinstance(p.warn, (list, tuple)) else p.warn
-        w = float(np.ravel(w)[0]) if np.ndim(w) else float(w)
-        chk = p.chk
-        chk.margin, chk.value, chk.limit = np.array([m[j][c]]), np.array([v[j][c]]), \
-            np.array([lim[j][c]])
-        chk.status = np.array([_status(m[j][c], w)], dtype=np.int8)
-        chk.row = None if p.single else np.array([j - p.r0])
-        chk.corner = np.array([c]) if p.k > 1 else None
+        w = w if type(w) is float else float(np.ravel(w)[0])
+        nums += (m[j][c], v[j][c], lim[j][c])
+        codes.append(_status(m[j][c], w))
+        where += (j - p.r0, c)
         if p.per_row:
-            chk.row_margins = np.array([worst_of])
+            p.chk.row_margins = np.array([worst_of])
+    nums, codes, where = np.array(nums), np.array(codes, dtype=np.int8), np.array(where)
+    for i, p in enumerate(pending):
+        chk = p.chk
+        chk.margin, chk.value, chk.limit = nums[3 * i:3 * i + 1], nums[3 * i + 1:3 * i + 2], \
+            nums[3 * i + 2:3 * i + 3]
+        chk.status = codes[i:i + 1]
+        chk.row = None if p.single else where[2 * i:2 * i + 1]
+        chk.corner = where[2 * i + 1:2 * i + 2] if p.k > 1 else None
 
 
 def _finish_many(p: _Pending, margin, value, limit, n: int) -> None:

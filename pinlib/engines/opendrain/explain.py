@@ -1,6 +1,6 @@
-"""Explanations of the open-drain engine: advice for a pull-up window that fails, what
-bounds a fall time (and the sink model the levels share), and the figures and notes of a
-segment, drawn from the same inputs the checks use."""
+"""Explanations of the open-drain engine: advice for a pull-up window that fails, the
+sink model the levels share, which of two lines' figures is the segment's (``_WORST``,
+the array engine's figures) and a segment's notes, drawn from the gathered inputs."""
 
 from __future__ import annotations
 
@@ -16,7 +16,6 @@ from pinlib.engines.opendrain.inputs import (
     _f,
 )
 from pinlib.engines.opendrain.rules import (
-    SIGNALS,
     window_open,
 )
 from pinlib.model.result import Group
@@ -148,30 +147,6 @@ SINK_MODEL = ("I ≥ min(V·IOL/VOL, IOL): the datasheet point (VOL at IOL) read
                "which sink-current checks), the fall-time bound both")
 
 
-def fall_basis(lim, d, info: dict, c: int, cb: float) -> tuple[str, dict]:
-    """What bounds the reported fall time (at corner ``c``): the text and the details."""
-    t_sink = float(info["t_sink"][c])
-    t_of = None if info["t_of"] is None else float(np.broadcast_to(info["t_of"], (2,))[c])
-    sink = (f"sinking at least {_f(d.i_ol, 'A')} above {_f(float(d.v_ol[c]), 'V')} and as "
-            f"{_f(float(d.r_sink[c]), 'Ω')} (VOL/IOL) below it")
-    details = {"bound": "constant sink current", "sink_bound": t_sink,
-               "sink_model": SINK_MODEL}
-    if t_of is not None and np.isfinite(t_of) and t_of <= t_sink:
-        if info["kind"] == "part":
-            src = d.tap.source("t_of_max")
-            details.update(bound="t_of_max of its part", bound_source=src)
-            return (f"its part's output fall time t_of_max {_f(t_of, 's')} ({src}); the sink "
-                    f"alone bounds it at {_f(t_sink, 's')}"), details
-        spec = lim.output_fall()
-        details.update(bound="tof of a compliant output stage", bound_source=spec.source)
-        return (f"tof {_f(t_of, 's')} of a compliant {lim.label} output stage ({spec.source}), "
-                f"Cb inside its range; the sink alone bounds it at {_f(t_sink, 's')}"), details
-    if info["why"]:
-        details["tof_not_used"] = info["why"]
-        return sink, details
-    return sink, details
-
-
 _WORST = {"bus_capacitance": max, "pullup": min, "rp_min": max, "rp_max": min, "rise_time": max,
           "rise_time_10_90": max, "fall_time": max, "v_ol": max, "v_oh": min,
           "noise_margin_low": min, "noise_margin_high": min, "pullup_power": max}
@@ -180,27 +155,10 @@ _UNITS = {"bus_capacitance": "F", "pullup": "Ω", "rp_min": "Ω", "rp_max": "Ω"
           "noise_margin_low": "V", "noise_margin_high": "V", "pullup_power": "W"}
 
 
-def segment_figures(grp: Group, seg_in: SegmentInputs, per_line: dict) -> None:
-    """A segment's figures: the worse of the two lines, then each line's own."""
-    figs = {}
-    for name, pick in _WORST.items():
-        vals = [per_line[s].get(name) for s in SIGNALS]
-        vals = [x for x in vals if x is not None]
-        figs[name] = pick(vals) if vals else None
-    for name in ("bus_capacitance", "rise_time", "fall_time", "pullup"):
-        for sig in SIGNALS:
-            figs[f"{name}_{sig}"] = per_line[sig].get(name)
-    for name, value in figs.items():
-        base = name.rsplit("_sda", 1)[0].rsplit("_scl", 1)[0]
-        grp.figure(name, value, _UNITS.get(base, _UNITS.get(name, "")))
-    grp.figure("supply", seg_in.segment.supply, "V")
-    grp.figure("pullup_resistor", seg_in.pullup, "Ω")
-    grp.figure("rise_factor", seg_in.lines["sda"].rise_factor, "")
-
-
-def segment_notes(grp: Group, lim: OpenDrainLimits, seg_in: SegmentInputs) -> None:
+def segment_notes(grp: Group, lim: OpenDrainLimits, seg_in: SegmentInputs, r_eff) -> None:
     """A segment's notes: the rise definition, the chosen pull-up, the contributors in
-    parallel, the trace capacitance, and every default taken for a value not stated."""
+    parallel (``r_eff(signal)``: every pull-up of a line in parallel), the trace
+    capacitance, and every default taken for a value not stated."""
     if lim.rise_definition == "smbus":
         grp.notes.insert(0, f"rise and fall times follow the SMBus definition: {lim.rise_text}; "
                             "rise_time_10_90 is 10–90 % of VDD")
@@ -213,7 +171,7 @@ def segment_notes(grp: Group, lim: OpenDrainLimits, seg_in: SegmentInputs) -> No
             parts = "; ".join(f"{p['ref']} {p['pin']} {_f(p['value'], 'Ω')} ({p['kind']})"
                               for p in ln.part_pullups)
             grp.notes.append(f"{sig.upper()} pull-up contributors in parallel: design resistor "
-                             f"{_f(seg_in.pullup, 'Ω')}; {parts} → {_f(seg_in.r_eff(sig), 'Ω')}")
+                             f"{_f(seg_in.pullup, 'Ω')}; {parts} → {_f(r_eff(sig), 'Ω')}")
     if seg_in.cb_notes:
         grp.notes.append("trace capacitance: " + "; ".join(dict.fromkeys(seg_in.cb_notes)))
     grp.notes.extend(seg_in.notes)

@@ -229,12 +229,6 @@ def controller_of(bus: Bus, segments: list[tuple[int, Segment]]) -> tuple[Device
     return ctrl, 0
 
 
-def worst_index(margins: np.ndarray) -> int:
-    """Index of the smallest margin, NaN counted as the worst. [1]"""
-    m = np.where(np.isnan(margins), -np.inf, margins)
-    return int(np.argmin(m))
-
-
 def counted_clock(lim: OpenDrainLimits, clock: float, t_low, t_high):
     """SCL low and high times as the controller counts them: its own where its part
     states them, else the specification's tLOW:tHIGH proportion of the clock's period
@@ -244,13 +238,6 @@ def counted_clock(lim: OpenDrainLimits, clock: float, t_low, t_high):
         t_low = t_low if t_low is not None else max(lim.t_low, lim.t_low * share)
         t_high = t_high if t_high is not None else max(lim.t_high, lim.t_high * share)
     return t_low, t_high
-
-
-def worst_per_row(margins: np.ndarray) -> tuple[list[float], list[int]]:
-    """Per row of a ``(rows, corners)`` array of margins: the smallest (NaN counted as
-    the worst) and its corner. [1]"""
-    idx = np.argmin(np.where(np.isnan(margins), -np.inf, margins), axis=1)
-    return margins[np.arange(margins.shape[0]), idx].tolist(), idx.tolist()
 
 
 def data_sources(index: int, ctrl_seg: int, segments: list[tuple[int, Segment]],
@@ -276,25 +263,34 @@ def supply_range_check(who: str, lo: float, hi: float, s_min: float, s_max: floa
     range is a hard limit: inside it passes, with no warning band.  ``source_of(low_side)``
     names the limit's source; ``ends``: the message names the rail's end (False for one
     board's rail, ``lo == hi``, whose corners the engine takes elsewhere). [V]"""
-    from pinlib.core.quantity import format_si
-
     m, low_side = supply_margin(lo, hi, s_min, s_max)
-    rng = f"{format_si(s_min, 'V')} to {format_si(s_max, 'V')}"
     if bool(low_side):
-        at = " at the rail's minimum" if ends else ""
         chk = check_min("supply-range", lo, s_min, "V", source_of(True),
-                        f"{who} runs from {format_si(lo, 'V')}{at}; its part needs {rng}",
+                        supply_range_text(who, True, lo, s_min, s_max, ends),
                         subject=who, warn_margin=0.0)
     else:
-        at = " at the rail's maximum" if ends else ""
         chk = check_max("supply-range", hi, s_max, "V", source_of(False),
-                        f"{who} runs from {format_si(hi, 'V')}{at}; its part allows {rng}",
+                        supply_range_text(who, False, hi, s_min, s_max, ends),
                         subject=who, warn_margin=0.0)
     if chk.status == "fail":
         chk.fix = ("give the device its own rail (supply = \"...\" on the device) or choose a "
                    "part for this rail")
         chk.message += f"; {chk.fix}"
     return chk
+
+
+def supply_range_text(who: str, low: bool, rail: float, s_min: float, s_max: float,
+                      ends: bool = True) -> str:
+    """The message of a ``supply-range`` check: the rail's end ``rail`` (its low end
+    where ``low``) against the part's range."""
+    from pinlib.core.quantity import format_si
+
+    rng = f"{format_si(s_min, 'V')} to {format_si(s_max, 'V')}"
+    if low:
+        at = " at the rail's minimum" if ends else ""
+        return f"{who} runs from {format_si(rail, 'V')}{at}; its part needs {rng}"
+    at = " at the rail's maximum" if ends else ""
+    return f"{who} runs from {format_si(rail, 'V')}{at}; its part allows {rng}"
 
 
 def supply_margin(lo, hi, s_min, s_max):

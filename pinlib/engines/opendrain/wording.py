@@ -1,0 +1,331 @@
+"""The wording of one open-drain line's checks: messages, fixes, subjects, details and
+notes, drawn from the array engine's checks at one variant (:mod:`.batch` at the
+design's own corners) and the gathered inputs (:func:`.inputs.collect`).
+
+Every number of a check (value, limit, margin, status, which row and rail corner is the
+worst) is the batch's; the gathered line gives the labels and sources, its receivers and
+drivers in the batch's row order.  Nothing here works a check out again: a function
+takes the next batch check of its kind and words it.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from pinlib.engines.opendrain.arith import BY_PART, far_drivers
+from pinlib.engines.opendrain.bridges import overdrive
+from pinlib.engines.opendrain.explain import SINK_MODEL, window_advice
+from pinlib.engines.opendrain.inputs import LineInputs, SegmentInputs, _default, _f
+from pinlib.engines.opendrain.rules import _CORNERS, GATE_OVERDRIVE
+from pinlib.model.result import STATUSES, Check, Group
+
+
+class Words:
+    """One segment while its checks are worded: the batch's checks in their order."""
+
+    def __init__(self, ctx, seg_in: SegmentInputs, checks: list):
+        self.ctx, self.seg_in, self.lim = ctx, seg_in, ctx.lim
+        self.checks, self.k = checks, 0
+        self.grp = Group()
+
+    def peek(self, id: str):
+        """The next batch check when it is ``id`` (else None)."""
+        if self.k < len(self.checks) and self.checks[self.k].id == id:
+            return self.checks[self.k]
+        return None
+
+    def take(self, id: str):
+        """The next batch check, which must be ``id``."""
+        chk = self.checks[self.k]
+        assert chk.id == id, (id, chk.id)  # the same checks in the same order
+        self.k += 1
+        return chk
+
+    def r_eff(self, signal: str) -> float:
+        """Every pull-up of a line in parallel, nominal, as the batch worked it out. [Ω]"""
+        return one(self.ctx.segs[self.seg_in.index].r_eff(signal))
+
+    def far_links(self) -> list:
+        """The segment's links through pass transistors, as :func:`.arith.far_drivers`
+        reads them."""
+        return [(link, None, None) for link in self.ctx.links[self.seg_in.index]
+                if link.kind == "mosfet"]
+
+
+def one(x) -> float:
+    """The one value of a number or an array of one element. [unit]"""
+    return x if type(x) is float else float(np.reshape(x, -1)[0])
+
+
+def row_corner(bc) -> tuple[int, int]:
+    """The worst row and rail corner of a batch check at its one variant. [1]"""
+    return (0 if bc.row is None else int(bc.row[0]),
+            0 if bc.corner is None else int(bc.corner[0]))
+
+
+def _num(x) -> float | None:
+    """A batch column's one value; NaN or infinity is None in the result."""
+    if x is None:
+        return None
+    v = x.item(0)
+    return v if -math.inf < v < math.inf else None
+
+
+def make(bc, source: str, message: str, **kw) -> Check:
+    """A result check with the batch check's numbers (a NaN or infinite value or limit
+    is None in the result)."""
+    margin = None if bc.margin is None else bc.margin.item(0)
+    return Check(bc.id, STATUSES[bc.status.item(0)], _num(bc.value), _num(bc.limit), bc.unit,
+                 margin, source, message, **kw)
+
+
+def _failed(chk: Check, fix: str, sep: str = "; ") -> None:
+    chk.fix = fix
+    chk.message += f"{sep}{fix}"
+
+
+def _by_margin(margins) -> list:
+    """(margin, row) of each row, smallest margin first (a stable sort: the first of
+    equal margins first)."""
+    return sorted(((m, k) for k, m in enumerate(margins)), key=lambda x: x[0])
+
+
+def line(w: Words, ln: LineInputs) -> None:
+    """Every check of one line, worded, in the engine's order."""
+    seg_in, lim, grp = w.seg_in, w.lim, w.grp
+    up, tol = ln.signal.upper(), seg_in.tol
+    r_eff = w.r_eff(ln.signal)
+    rp_lo, rp_hi = r_eff * (1 - tol), r_eff * (1 + tol)
+    if lim.cb_max is not None:
+        p = ln.cb_parts
+        grp.add(make(w.take("bus-capacitance"), lim.source_cb,
+                     f"{up} bus capacitance {_f(ln.cb, 'F')} (pins {_f(p['pins'], 'F')}, traces "
+                     f"{_f(p['traces'], 'F')}, cables {_f(p['cables'], 'F')}, extra "
+                     f"{_f(p['extra'], 'F')})", subject=up, details=dict(p)))
+    grp.add(_window(w, ln, r_eff, rp_lo))
+    defin = ("30–70 %" if lim.rise_definition == "30-70" else "SMBus points 0.65 V–1.50 V")
+    bc = w.take("rise-time")
+    grp.add(make(bc, lim.source_edges,
+                 f"{up} rise time {_f(bc.value[0], 's')} ({defin}, Rp {_f(rp_hi, 'Ω')} at "
+                 f"+{tol:.0%}, Cb {_f(ln.cb, 'F')}, factor {ln.rise_factor:.4g})", subject=up,
+                 details={"definition": lim.rise_definition, "factor": ln.rise_factor}))
+    far = w.far_links()
+    behind = any(True for _ in far_drivers(far, w.ctx.collected, ln.signal))
+    local = [d for d in ln.drivers if d.offset is None]
+    offsets = [d for d in ln.drivers if d.offset is not None]
+    if ln.receivers and (local or behind):
+        _v_ol(w, ln, far)
+    if local or offsets:
+        _sink(w, ln, far)
+    elif not behind:
+        grp.notes.append(f"{up}: no device on this segment drives the line low; levels not checked")
+    if not (local or behind) and offsets:
+        grp.notes.append(f"{up} is driven low on this segment only by the static-offset side "
+                         f"of {', '.join(d.tap.label for d in offsets)}: see bridge-offset")
+    if ln.receivers:
+        _v_oh(w, ln, rp_hi)
+    _fall(w, ln, far)
+
+
+def _window(w: Words, ln: LineInputs, r_eff: float, rp_lo: float) -> Check:
+    lim, seg_in = w.lim, w.seg_in
+    tol, up = seg_in.tol, ln.signal.upper()
+    bc = w.take("pullup-window")
+    m_lo, m_hi = (one(x) for x in bc.basis)
+    contributors = [{"ref": "design", "pin": ln.signal, "kind": "design resistor",
+                     "value": seg_in.pullup,
+                     "source": "chosen by auto from " + seg_in.segment.pullup_series
+                     if seg_in.auto else "the design file"}] + ln.part_pullups
+    src = (f"UM10204 rev. 6 §7.1 eq. 1 and 2; tr from {lim.source_edges}"
+           if lim.protocol == "i2c" else
+           f"UM10204 rev. 6 §7.1 eq. 2; Rp(max) with the SMBus rise points, {lim.source_edges}")
+    if ln.coupled:
+        src += "; Rp(min) shares each sink's rating with the pull-ups across the translator"
+    details = {"rp_min": ln.rp_min, "rp_max": ln.rp_max, "margin_low": m_lo, "margin_high": m_hi,
+               "tolerance": tol, "effective": r_eff, "contributors": contributors,
+               "definition": lim.rise_definition, "auto": seg_in.auto}
+    shown = (f"{_f(r_eff, 'Ω')} ({' ∥ '.join(_f(c['value'], 'Ω') for c in contributors)})"
+             if ln.part_pullups else _f(r_eff, 'Ω'))
+    lo_text = _f(ln.rp_min, 'Ω') if math.isfinite(ln.rp_min) else "none (no value: see below)"
+    hi_text = _f(ln.rp_max, 'Ω') if math.isfinite(ln.rp_max) else "no upper limit"
+    window = f"[{lo_text}, {hi_text}]"
+    value = float(bc.value[0])
+    if not math.isfinite(ln.rp_min):
+        # the far side's pull-ups alone exceed a sink's rating: no Rp(min) exists
+        reason = ("no Rp(min) exists: the pull-ups across the translator alone draw more "
+                  "than the weakest sink's rating, so no pull-up on this segment is large "
+                  "enough")
+        chk = Check("pullup-window", "fail", rp_lo, None, "Ω", None, src,
+                    f"{up} pull-up {shown} at −{tol:.0%}: {_f(rp_lo, 'Ω')}; "
+                    f"{reason}", subject=up, details=details, reason=reason)
+    else:
+        sign = "−" if m_lo <= m_hi else "+"
+        chk = make(bc, src, f"{up} pull-up {shown} at {sign}{tol:.0%}: {_f(value, 'Ω')} "
+                   f"against the window {window}", subject=up, details=details)
+    if chk.status == "fail":
+        _failed(chk, window_advice(lim, seg_in, ln, m_lo, m_hi))
+    return chk
+
+
+def _v_ol(w: Words, ln: LineInputs, far: list) -> None:
+    """The bus low level against every receiver's VIL, and the low-level noise margin."""
+    lim, up = w.lim, ln.signal.upper()
+    bc = w.take("v-ol")
+    k, c = row_corner(bc)
+    r = ln.receivers[k]
+    rows = _by_margin(bc.row_margins[0].tolist())
+    failing = [ln.receivers[j].tap.label for m, j in rows if m < 0]
+    by = bc.by_names[int(bc.by[0])]
+    chk = make(bc, r.source, f"{up} low level {_f(bc.value[0], 'V')} (driver {by} at the actual "
+               f"current, {_CORNERS[c]}, incl. I·Rs) against VIL {_f(bc.limit[0], 'V')} of "
+               f"{r.tap.label}", subject=f"{up} {r.tap.label}",
+               details={"receivers": {ln.receivers[j].tap.label: m for m, j in rows},
+                        "sink_model": SINK_MODEL})
+    _conditional_on_r_on(w, far, chk)
+    if failing:
+        _failed(chk, f"receivers {', '.join(failing)} read the low level as high: a larger "
+                     "pull-up, a stronger sink, smaller series resistors, or a translator")
+    w.grp.add(chk)
+    nm = w.peek("noise-margin-low")
+    if nm is not None and nm.signal == up:
+        w.take("noise-margin-low")
+        _, c = row_corner(nm)
+        w.grp.add(make(nm, lim.source_noise,
+                       f"{up} low-level noise margin {_f(nm.value[0], 'V')} (lowest VIL − low "
+                       f"level, {_CORNERS[c]}) against {lim.v_nl_rel:g}·VDD", subject=up))
+
+
+def _conditional_on_r_on(w: Words, far: list, chk: Check) -> None:
+    """A low level computed through a pass transistor whose on-resistance is not assured
+    (gate overdrive below GATE_OVERDRIVE) holds only if it is: say so."""
+    for link, _, _ in far:
+        over = overdrive(link, w.ctx.collected)
+        if over is None or over >= GATE_OVERDRIVE:
+            continue
+        text = (f"conditional: it takes {link.dev.ref}'s on-resistance {_f(link.r_on, 'Ω')}, "
+                f"not assured at {_f(over, 'V')} gate overdrive (bridge-gate-drive)")
+        chk.message += f"; {text}"
+        chk.details["conditional"] = text
+
+
+def _sink(w: Words, ln: LineInputs, far: list) -> None:
+    """Sink current against each driver's rating (the worst one reported)."""
+    up, tol = ln.signal.upper(), w.seg_in.tol
+    bc = w.take("sink-current")
+    k, _ = row_corner(bc)
+    d = ln.drivers[bc.basis[k]]
+    currents = bc.row_values[0].tolist()
+    order = sorted(range(len(currents)),
+                   key=lambda j: -(currents[j] / ln.drivers[bc.basis[j]].i_ol))
+    extra = " and the far side's pull-up through the translator" if far else ""
+    chk = make(bc, d.source_i,
+               f"{up} sink current {_f(bc.value[0], 'A')} (pull-up at −{tol:.0%}, rail at its "
+               f"maximum{extra}) against {d.tap.label}'s rating {_f(d.i_ol, 'A')} at "
+               f"{_f(float(d.v_ol[1]), 'V')}", subject=f"{up} {d.tap.label}",
+               details={"drivers": {ln.drivers[bc.basis[j]].tap.label: currents[j]
+                                    for j in order}})
+    if chk.status == "fail" and not math.isfinite(ln.rp_min):
+        _failed(chk, "no pull-up on this segment helps: the pull-ups across the translator "
+                     "alone draw more than the weakest sink's rating (see pullup-window)")
+    elif chk.status == "fail":
+        _failed(chk, f"raise the effective pull-up to at least "
+                     f"{_f(ln.rp_min / (1 - tol), 'Ω')} (Rp(min) at −{tol:.0%})")
+    w.grp.add(chk)
+
+
+def _v_oh(w: Words, ln: LineInputs, rp_hi: float) -> None:
+    """The high level after leakage against every receiver's VIH; its noise margin."""
+    lim, up = w.lim, ln.signal.upper()
+    bc = w.take("v-oh")
+    k, c = row_corner(bc)
+    r = ln.receivers[k]
+    rows = _by_margin(bc.row_margins[0].tolist())
+    failing = [ln.receivers[j].tap.label for m, j in rows if m < 0]
+    src = r.tap.source("v_ih") if r.tap.pin.v_ih is not None else lim.source_levels
+    chk = make(bc, src, f"{up} high level {_f(bc.value[0], 'V')} (rail − {_f(ln.leakage, 'A')} "
+               f"leakage × {_f(rp_hi, 'Ω')}, {_CORNERS[c]}) against VIH {_f(bc.limit[0], 'V')} "
+               f"of {r.tap.label}", subject=f"{up} {r.tap.label}",
+               details={"receivers": {ln.receivers[j].tap.label: m for m, j in rows}})
+    if failing:
+        _failed(chk, f"{', '.join(failing)} cannot read the pull-up rail as high: pull up to "
+                     "a rail they accept, put a level translator between, or lower the pull-up "
+                     "(leakage drop)")
+    w.grp.add(chk)
+    nh = w.peek("noise-margin-high")
+    if nh is not None and nh.signal == up:
+        w.take("noise-margin-high")
+        _, c = row_corner(nh)
+        w.grp.add(make(nh, lim.source_noise,
+                       f"{up} high-level noise margin {_f(nh.value[0], 'V')} (high level − "
+                       f"highest VIH, {_CORNERS[c]}) against {lim.v_nh_rel:g}·VDD", subject=up))
+
+
+def _fall(w: Words, ln: LineInputs, far: list) -> None:
+    """Fall time (upper bound from each driver's guaranteed sink) and tf(min)."""
+    lim, seg_in, up, tol = w.lim, w.seg_in, ln.signal.upper(), w.seg_in.tol
+    bc = w.peek("fall-time")
+    if bc is None or bc.signal != up:
+        return
+    w.take("fall-time")
+    k, c = row_corner(bc)
+    info, s_i, j = bc.basis[k]
+    d = w.ctx.collected[s_i].lines[ln.signal].drivers[j]
+    via = "" if s_i == seg_in.index else f" via {bc.names[k].rsplit(' via ', 1)[1]}"
+    text, details = fall_basis(lim, d, info, c, ln.cb)
+    chk = make(bc, lim.source_edges,
+               f"{up} fall time at most {_f(bc.value[0], 's')} (driver {d.tap.label}{via}: "
+               f"{text}; pull-up at −{tol:.0%}, Cb {_f(ln.cb, 'F')}, {_CORNERS[c]})",
+               subject=up, details=details)
+    if chk.status == "fail":
+        _failed(chk, "a stronger sink, a larger pull-up (inside its window), less bus "
+                     "capacitance, or a part that states its output fall time (t_of_max)")
+    w.grp.add(chk)
+    tf_min = lim.tf_min(float(seg_in.vdd[1]))
+    if tf_min is None:
+        return
+    missing = []
+    for d in ln.drivers:
+        t_of = d.tap.pin.t_of_min
+        if t_of is not None:
+            m = w.take("fall-time-min")
+            w.grp.add(make(m, lim.source_edges,
+                           f"{up} output fall time of {d.tap.label} at least "
+                           f"{_f(float(t_of.value), 's')} (its part's t_of_min) against "
+                           f"tf(min) {_f(tf_min, 's')}", subject=f"{up} {d.tap.label}"))
+        elif not d.tap.dev.is_bridge:
+            missing.append(d.tap.label)
+    if missing:
+        _default(seg_in, f"tf(min) {_f(tf_min, 's')} ({lim.source_edges}) is the "
+                         "responsibility of each device's slope-controlled output; its "
+                         "part states no t_of_min, so it is not checked",
+                 f"{up}: " + ", ".join(missing))
+
+
+def fall_basis(lim, d, info: dict, c: int, cb: float) -> tuple[str, dict]:
+    """What bounds the reported fall time (at corner ``c``; ``info`` as
+    :func:`.arith.fall_bounds` gives it, one variant): the text and the details."""
+    t_sink = float(info["t_sink"].reshape(-1)[c] if info["t_sink"].size > 1
+                   else info["t_sink"].reshape(-1)[0])
+    t_of = info["t_of"]
+    if t_of is not None:
+        t_of = t_of.reshape(-1)
+        t_of = float(t_of[c] if t_of.size > 1 else t_of[0])
+    sink = (f"sinking at least {_f(d.i_ol, 'A')} above {_f(float(d.v_ol[c]), 'V')} and as "
+            f"{_f(float(d.r_sink[c]), 'Ω')} (VOL/IOL) below it")
+    details = {"bound": "constant sink current", "sink_bound": t_sink,
+               "sink_model": SINK_MODEL}
+    if t_of is not None and math.isfinite(t_of) and t_of <= t_sink:
+        if info["kind"] == BY_PART:
+            src = d.tap.source("t_of_max")
+            details.update(bound="t_of_max of its part", bound_source=src)
+            return (f"its part's output fall time t_of_max {_f(t_of, 's')} ({src}); the sink "
+                    f"alone bounds it at {_f(t_sink, 's')}"), details
+        spec = lim.output_fall()
+        details.update(bound="tof of a compliant output stage", bound_source=spec.source)
+        return (f"tof {_f(t_of, 's')} of a compliant {lim.label} output stage ({spec.source}), "
+                f"Cb inside its range; the sink alone bounds it at {_f(t_sink, 's')}"), details
+    if info["why"]:
+        details["tof_not_used"] = info["why"]
+    return sink, details

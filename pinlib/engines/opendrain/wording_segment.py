@@ -1,0 +1,271 @@
+"""The wording of an open-drain segment: its figures, its timing, voltage-domain,
+power-state and bridging-part checks, and its notes, drawn from the array engine's
+segment at one variant (:mod:`.batch`) and the gathered inputs (:func:`.inputs.collect`);
+the checks of each line are worded by :mod:`.wording`."""
+
+from __future__ import annotations
+
+from pinlib.engines.opendrain.explain import _UNITS, segment_notes
+from pinlib.engines.opendrain.inputs import (
+    SegmentInputs,
+    _default,
+    _f,
+    _offset_side,
+    value_source,
+)
+from pinlib.engines.opendrain.rules import (
+    _COMMON,
+    CLAMP_DROP,
+    GATE_OVERDRIVE,
+    SIGNALS,
+    supply_range_text,
+)
+from pinlib.engines.opendrain.wording import Words, line, make, one, row_corner
+from pinlib.model.result import Group, check_true
+
+#: The units of the segment's own figures (the lines' are in ``explain._UNITS``).
+_SEGMENT_UNITS = {"supply": "V", "pullup_resistor": "Ω", "rise_factor": "",
+                  "scl_frequency_effective": "Hz", "sda_setup_margin": "s"}
+
+
+def _unit(name: str) -> str:
+    """The unit of a figure (a line's own figure ends in its signal)."""
+    unit = _UNIT_OF.get(name)
+    if unit is None:
+        base = name.rsplit("_sda", 1)[0].rsplit("_scl", 1)[0]
+        unit = _UNIT_OF[name] = _SEGMENT_UNITS.get(name, _UNITS.get(base, _UNITS.get(name, "")))
+    return unit
+
+
+_UNIT_OF: dict = {}
+
+
+def segment(ctx, seg_in: SegmentInputs, sb) -> Group:
+    """Every figure, check and note of one segment, worded (``sb``: the batch's
+    :class:`.batchresult.SegmentBatch` of this segment at one variant)."""
+    w = Words(ctx, seg_in, sb.checks)
+    grp = w.grp
+    for name, x in sb.figures.items():
+        grp.figure(name, None if x is None else x.item(0), _unit(name))
+    for ln in seg_in.lines.values():
+        line(w, ln)
+    _timing(w, sb)
+    taps = [t for sig in SIGNALS for t in seg_in.lines[sig].taps]
+    _domains(w, taps)
+    _power(w, taps)
+    _bridges(w)
+    assert w.k == len(sb.checks), [c.id for c in sb.checks[w.k:]]  # every check worded
+    segment_notes(grp, ctx.lim, seg_in, w.r_eff)
+    return grp
+
+
+def _timing(w: Words, sb) -> None:
+    """The clock against the mode, the slowest device, the SDA data setup."""
+    ctx, lim, seg_in, grp = w.ctx, w.lim, w.seg_in, w.grp
+    clock = ctx.clock
+    bc = w.take("scl-frequency")
+    t = bc.basis
+    if t["counted"] and seg_in.index == ctx.ctrl_seg:
+        grp.notes.append(f"SCL low/high times taken as the controller counting "
+                         f"{_f(t['t_low'], 's')} / {_f(t['t_high'], 's')} for a "
+                         f"{_f(clock, 'Hz')} clock (the specification's tLOW:tHIGH proportion, "
+                         f"{lim.source_timing}); give the controller's t_low/t_high to use its "
+                         "own")
+    f_eff = float(sb.figures["scl_frequency_effective"][0])
+    grp.add(make(bc, lim.source_f,
+                 f"SCL clock {_f(clock, 'Hz')} against {lim.label}'s {_f(lim.f_max, 'Hz')}; "
+                 f"with the edges the controller counts, the effective frequency is "
+                 f"{_f(f_eff, 'Hz')} (UM10204 rev. 6 §7.2.1 eq. 3)"))
+    bc = w.peek("device-speed")
+    if bc is not None:
+        w.take("device-speed")
+        k, _ = row_corner(bc)
+        d = next(d for d in seg_in.segment.devices if d.ref == bc.names[k])
+        grp.add(make(bc, value_source(d, "timing.f_max", d.part.timing.f_max),
+                     f"clock {_f(clock, 'Hz')} against the slowest device {d.ref}'s "
+                     f"rated {_f(bc.limit[0], 'Hz')}", subject=d.ref))
+    bc = w.peek("setup-time")
+    if bc is None:
+        return
+    w.take("setup-time")
+    devices = ctx.devices
+    for ref in bc.names:
+        if devices[ref].part.timing.t_vd_dat is None:
+            _default(seg_in, f"no t_vd_dat stated: taken at the specification's "
+                             f"{_f(lim.t_vd_dat, 's')} ({lim.source_vd_dat})", ref)
+    k, _ = row_corner(bc)
+    t = bc.basis
+    tvd, ref = one(t["t_vd"][k]), bc.names[k]
+    grp.add(make(bc, f"{lim.source_timing}; tVD;DAT {lim.source_vd_dat}",
+                 f"SDA data setup tLOW {_f(t['t_low'], 's')} − tVD;DAT {_f(tvd, 's')} "
+                 f"({ref}{', incl. bridge delays' if tvd > lim.t_vd_dat else ''}) − tr "
+                 f"{_f(one(t['t_r']), 's')} = {_f(bc.value[0], 's')} against tSU;DAT "
+                 f"{_f(lim.t_su_dat, 's')}", subject=f"SDA {ref}"))
+
+
+def _domains(w: Words, taps: list) -> None:
+    """abs_max against the pull-up rail; rails inside the parts' supply ranges."""
+    seg_in, grp = w.seg_in, w.grp
+    bc = w.peek("input-voltage")
+    if bc is not None:
+        w.take("input-voltage")
+        capped = [t for t in taps if t.pin.abs_max is not None]
+        k, _ = row_corner(bc)
+        t = capped[k]
+        chk = make(bc, t.source("abs_max"),
+                   f"pull-up rail up to {_f(bc.value[0], 'V')} on the pins of {t.label} "
+                   f"(abs_max {_f(bc.limit[0], 'V')} at its own rail {_f(t.vdd, 'V')})",
+                   subject=t.label)
+        bad = [capped[j] for j, m in enumerate(bc.row_margins[0].tolist()) if m < 0]
+        if bad:
+            failing = sorted({x.label for x in bad})
+            rails = sorted({x.vdd for x in bad})
+            chk.fix = (f"{', '.join(failing)} would be driven above their absolute maximum: put "
+                       f"a level translator between them and the "
+                       f"{_f(seg_in.segment.supply, 'V')} rail, or pull this segment up to "
+                       f"{_f(rails[0], 'V')} if every device on it accepts that rail")
+            chk.message += f"; {chk.fix}"
+        grp.add(chk)
+    bc = w.peek("supply-range")
+    if bc is not None:
+        w.take("supply-range")
+        k, _ = row_corner(bc)
+        t = next(t for t in taps if t.label == bc.names[k])
+        sup = t.dev.part.supply_for(t.dev.side)
+        where = "supply" if sup is t.dev.part.supply else f"sides.{t.dev.side}.supply"
+        low = bool(bc.basis[k].reshape(-1)[0])
+        src = (value_source(t.dev, f"{where}.min", sup.min) if low
+               else value_source(t.dev, f"{where}.max", sup.max))
+        chk = make(bc, src, supply_range_text(t.label, low, float(bc.value[0]),
+                                              float(sup.min.value), float(sup.max.value)),
+                   subject=t.label)
+        if chk.status == "fail":
+            chk.fix = ("give the device its own rail (supply = \"...\" on the device) or choose "
+                       "a part for this rail")
+            chk.message += f"; {chk.fix}"
+        grp.add(chk)
+
+
+def _power(w: Words, taps: list) -> None:
+    """Devices on switched rails: power-off tolerant pins, or the clamp current."""
+    seg_in, grp = w.seg_in, w.grp
+    v_max, tol = float(seg_in.vdd[1]), seg_in.tol
+    for d in seg_in.segment.devices:
+        if not d.switched:
+            continue
+        w.take("power-off")
+        loading = [t for t in taps if t.dev is d and not t.pin.off_tolerant]
+        if not loading:
+            grp.add(check_true("power-off", True, f"{d.part_id} pins off_tolerant",
+                               f"{d.ref} sits on a switched rail; its pins are power-off tolerant",
+                               subject=d.ref))
+            continue
+        currents = []
+        for t in loading:
+            sig = "sda" if t.pin.function == SIGNALS["sda"] else "scl"
+            currents.append((sig.upper(), (v_max - CLAMP_DROP) / (w.r_eff(sig) * (1 - tol))))
+        shown = ", ".join(f"{s} {_f(i, 'A')}" for s, i in currents)
+        chk = check_true(
+            "power-off", False, f"{_COMMON}: input clamp diodes to the device's own rail "
+            f"({CLAMP_DROP:g} V drop)",
+            f"{d.ref} sits on a switched rail and its pins are not power-off tolerant: with its "
+            f"rail off, its input clamps hold {' and '.join(s for s, _ in currents)} about "
+            f"{CLAMP_DROP:g} V above the dead rail (below every VIL: the bus stops) and the "
+            f"pull-ups feed {shown} into it, back-powering its rail", subject=d.ref,
+            details={"clamp_current": {s: i for s, i in currents}})
+        chk.fix = ("use a part with power-off-tolerant (fail-safe) bus pins, keep its rail on "
+                   "while the bus runs, or isolate it behind a bus switch or buffer that "
+                   "disconnects when its rail is off")
+        chk.message += f"; fix: {chk.fix}"
+        grp.add(chk)
+
+
+def _bridges(w: Words) -> None:
+    """Gate drive of pass transistors; static-offset sides and two of them facing."""
+    ctx, seg_in, grp = w.ctx, w.seg_in, w.grp
+    seg = seg_in.segment
+    offsets = []
+    for link in ctx.links[seg_in.index]:
+        d = link.dev
+        if link.kind == "mosfet":
+            if seg.supply > ctx.collected[link.other].segment.supply:
+                continue  # the low side reports the gate drive
+            _gate_drive(w, link)
+            if d.part.bridge.r_on is None:
+                grp.notes.append(f"{d.ref}: the translator's on-resistance (bridge.r_on) is not "
+                                 "stated; taken as 0 Ω, so the far side's low level is optimistic")
+            continue
+        if link.t_pd == 0.0 and d.part.timing.t_pd is None:
+            _default(seg_in, "bridge propagation delay (timing.t_pd) not stated: taken as 0 s "
+                             "in the setup budget", d.ref)
+        if _offset_side(d) == d.side:
+            offsets.append(d)
+    for d in offsets:
+        _offset(w, d)
+    if offsets:
+        w.take("bridge-offset-facing")
+        ok = len(offsets) < 2
+        names = ", ".join(f"{d.ref} side {d.side}" for d in offsets)
+        chk = check_true("bridge-offset-facing", ok,
+                         "common practice, no source: a static-offset side reads another's "
+                         "offset low as a driven low",
+                         f"static-offset sides on this segment: {names}" + (
+                             "" if ok else ": each sees the other's offset low as a driven low "
+                             "and holds it — the bus locks low"), subject=offsets[0].ref)
+        if not ok:
+            chk.fix = ("never join two static-offset sides: turn one repeater round or use a "
+                       "repeater without offset on one side")
+            chk.message += f"; {chk.fix}"
+        grp.add(chk)
+
+
+def _gate_drive(w: Words, link) -> None:
+    """A pass transistor's gate overdrive from the low rail at its minimum."""
+    d, v_min = link.dev, float(w.seg_in.vdd[0])
+    br = d.part.bridge
+    if br.v_gs_th is None:
+        w.grp.notes.append(f"{d.ref}: the translator's gate threshold (bridge.v_gs_th) is "
+                           "not stated; gate drive not checked")
+        return
+    bc = w.take("bridge-gate-drive")
+    over = float(bc.value[0])
+    msg = (f"{d.ref} gate drive: low rail {_f(v_min, 'V')} at its minimum − gate "
+           f"threshold {_f(float(br.v_gs_th.value), 'V')} = {_f(over, 'V')} overdrive")
+    chk = make(bc, f"{_COMMON}: gate overdrive of at least {GATE_OVERDRIVE:g} V (a warning "
+               f"below it; none at all, 0 V, fails); threshold from {d.part_id} "
+               "bridge.v_gs_th", msg, subject=d.ref, details={"warn_below": GATE_OVERDRIVE},
+               margin_unit="V")
+    if chk.status != "pass":
+        chk.fix = ("a MOSFET with a lower gate threshold (logic-level, below "
+                   f"{_f(v_min - GATE_OVERDRIVE, 'V')}) or an active translator")
+        chk.message += (f"; below {_f(GATE_OVERDRIVE, 'V')} its on-resistance "
+                        f"{_f(link.r_on, 'Ω')} is not assured: {chk.fix}")
+    w.grp.add(chk)
+
+
+def _offset(w: Words, d) -> None:
+    """A repeater side's static-offset low against every other receiver's VIL."""
+    seg_in = w.seg_in
+    side = d.part.sides[d.side]
+    if side.low_offset is None:
+        w.grp.notes.append(f"{d.ref}: side {d.side} drives a static offset low but states no "
+                           "level (sides.<side>.low_offset); not checked")
+        return
+    facing = [(r, sig) for sig in SIGNALS for r in seg_in.lines[sig].receivers
+              if r.tap.dev.ref != d.ref]
+    if not facing:
+        return
+    bc = w.take("bridge-offset")
+    k, _ = row_corner(bc)
+    r, sig = facing[k]
+    off = _f(bc.value[0], 'V')
+    chk = make(bc, f"{value_source(d, f'sides.{d.side}.low_offset', side.low_offset)}; "
+                   f"VIL from {r.source}",
+               f"{d.ref} drives side {d.side} low to {off} (static offset) against VIL "
+               f"{_f(bc.limit[0], 'V')} of {r.tap.label} ({sig.upper()})", subject=d.ref)
+    if chk.status == "fail":
+        chk.fix = (f"every device on the offset side must read {off} as low: "
+                   "replace those with VIL below it, or turn the repeater so its offset "
+                   "side faces devices with VIL = 0.3·VDD at a higher rail")
+        chk.message += f"; {chk.fix}"
+    w.grp.add(chk)
