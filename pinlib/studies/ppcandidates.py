@@ -64,7 +64,7 @@ def evaluate_batched(design: Design, ref: str, parts: list[Part],
             swapped, inputs = {}, []
             for p in chunk:
                 try:
-                    sw = swapped[p.id] = design.with_parts({ref: p.id})
+                    sw = swapped[p.id] = design.with_parts({ref: p.id}, keep_others=True)
                     for b in buses:
                         inputs += line_inputs(sw.bus(b.id), sw)
                 except PinlibError:
@@ -73,7 +73,7 @@ def evaluate_batched(design: Design, ref: str, parts: list[Part],
             done = []  # yielded after the scope ends: no memo outlives the chunk
             for p in chunk:
                 try:
-                    sw = swapped.get(p.id) or design.with_parts({ref: p.id})
+                    sw = swapped.get(p.id) or design.with_parts({ref: p.id}, keep_others=True)
                     with memo.transient():  # its own solves (corners...) go with it
                         done.append((p, [evaluate_bus(sw.bus(b.id), sw) for b in buses]))
                 except PinlibError as err:
