@@ -40,11 +40,14 @@ from pinlib.engines.pushline.line import (
     LineInputs,
     _driver_models,
     _electrical_length,
+    alone_inputs,
+    alone_key,
     line_stretches,
 )
 from pinlib.engines.pushline.termination import auto_ideal, chosen_series_resistor
 from pinlib.engines.pushline.waves import edge_grid, is_settled, unit_edge_key
 from pinlib.model.result import LineResult
+from pinlib.physics import driver as drv
 from pinlib.physics import waveform as wf
 
 __all__ = ["prefetch", "MAX_ELEMENTS", "STEP_RATIO"]
@@ -76,8 +79,10 @@ def prefetch(inputs: Iterable[LineInputs]) -> int:
     if not memo.active():
         return 0
     requests, uses = {}, {}
-    for li in inputs:
-        for req, use in _requests(li):
+    made = [(li, a) for li in inputs if (a := _analysis(li)) is not None]
+    _edges_alone([a for _, (a, _) in made])
+    for li, (a, pullup) in made:
+        for req, use in _requests(li, a, pullup):
             key = unit_edge_key(*req)
             if key not in requests and not memo.known(key):
                 requests[key] = req
@@ -150,10 +155,10 @@ def _solve(sections: list, batch: list, uses: dict) -> int:
     return stored
 
 
-def _requests(li: LineInputs) -> list[tuple]:
-    """The edges the analysis of ``li`` will solve: ``((stretches, r_source, t_ramp,
-    c_far, distributed), EdgeUse)`` each, by the engine's own steps; none when a step
-    refuses (the analysis itself then says why)."""
+def _analysis(li: LineInputs) -> tuple[LineAnalysis, dict] | None:
+    """The analysis of ``li`` up to its drivers' models (and the pull-up of each
+    open-drain driver), by the engine's steps; None where a step refuses or no driver
+    is left (the analysis itself then says why)."""
     try:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")  # the analysis notes its own warnings
@@ -161,8 +166,39 @@ def _requests(li: LineInputs) -> list[tuple]:
                              list(li.drivers), list(li.loads), list(li.receivers),
                              result=LineResult(signal=li.signal))
             pullup = _driver_models(a, a.result)
-            if not a.drivers:
-                return []
+    except PinlibError:
+        return None
+    return (a, pullup) if a.drivers else None
+
+
+def _edges_alone(analyses: list) -> None:
+    """Every driver's edge into the pins alone, of all ``analyses`` in one array (the
+    arithmetic is elementwise: each is the engine's own to the last bit), into the
+    run's memo under :func:`_edge_alone`'s key."""
+    todo = {}
+    for a in analyses:
+        for x in alone_inputs(a):
+            key = alone_key(*x)
+            if key not in todo and not memo.known(key):
+                todo[key] = x
+    if not todo:
+        return
+    r, t_ramp, c = (np.array(col, dtype=float) for col in zip(*todo.values(), strict=True))
+    try:
+        got = np.atleast_1d(drv.edge_time(r, t_ramp, c))
+    except PinlibError:
+        return  # a value the physics refuses: the engine meets it on its own
+    for key, value in zip(todo, got, strict=True):
+        memo.keep(key, float(value))
+
+
+def _requests(li: LineInputs, a: LineAnalysis, pullup: dict) -> list[tuple]:
+    """The edges the analysis of ``li`` (``a``: its drivers' models made) will solve:
+    ``((stretches, r_source, t_ramp, c_far, distributed), EdgeUse)`` each, by the
+    engine's own steps; none when a step refuses (the analysis itself then says why)."""
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
             _electrical_length(a, [])
     except PinlibError:
         return []
