@@ -192,6 +192,7 @@ def march_rows(net: Network, delays: np.ndarray, v_src: np.ndarray, n_t: int) ->
     put = ((np.arange(n_ports)[:, None, None] * n_b + cols[None, None, :]) * size
            + pad + np.arange(k_max)[None, :, None])                    # (P, K, B)
     frac = frac[:, None, :] if np.any(frac > 0.0) else None
+    one_each = n_ports == n_nodes and np.array_equal(net.port_node, np.arange(n_nodes))
 
     out = np.empty((n_nodes, runs, k_max, n_b))
     v_last = np.zeros((n_nodes, n_b))
@@ -207,19 +208,21 @@ def march_rows(net: Network, delays: np.ndarray, v_src: np.ndarray, n_t: int) ->
             inc = got[:, 1:]
             if frac is not None:  # a delay between two samples: linear interpolation
                 inc = inc + frac * (got[:, :-1] - inc)
-            cur = np.matmul(net.incidence, (two_g * inc).reshape(n_ports, -1))
-            cur = cur.reshape(n_nodes, k_max, n_b)
+            if one_each:  # a port per node, in order: the incidence is the identity
+                cur = two_g * inc
+            else:
+                cur = np.matmul(net.incidence, (two_g * inc).reshape(n_ports, -1))
+                cur = cur.reshape(n_nodes, k_max, n_b)
         else:
             cur = np.zeros((n_nodes, k_max, n_b))
         cur[src] += net.g_source * v_here
-        w = c_now * cur
+        w = np.multiply(c_now, cur, out=out[:, j])  # the run summed in its place
         w[:, 0] += net.c_prev * i_last
         w[:, 1:] += c_prev * cur[:, :-1]
         w = scan(w, v_last)
         w[src] = np.where(forced, v_here, w[src])
-        out[:, j] = w
         if n_ports:
-            launched[put + start] = w[net.port_node] - inc
+            launched[put + start] = (w if one_each else w[net.port_node]) - inc
         i_last = cur[:, block - 1, cols]
         v_last = w[:, block - 1, cols]
     volts = np.empty((n_nodes, n_t, n_b))
