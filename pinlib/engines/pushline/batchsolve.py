@@ -6,11 +6,13 @@ time is its waveform solves, one :func:`pinlib.physics.waveform.distributed_resp
 call per edge.  :func:`prefetch` takes the inputs of every variant's line analyses
 (:class:`~pinlib.engines.pushline.line.LineInputs`), works out the edges each will solve
 with the engine's own steps (driver models, electrical length, :func:`edge_plan`, the
-grid of :func:`edge_grid`), and solves the edges that share a chain of sections and a
-time step in one call: the grid ``arange(n + 1) * dt`` of a shorter record is the start
-of a longer one's, and the solver is causal, so each edge is the first samples of the
-longest record of its group.  Each result goes into the run's memo under the exact key
-:func:`~pinlib.engines.pushline.waves.simulate_edge` asks for, and the analyses made
+grid of :func:`edge_grid`), and solves the edges that share a chain of sections in one
+call per group of time steps within :data:`STEP_RATIO` of each other, each edge on its
+own grid (:mod:`pinlib.physics.waveform.rowgrids`): the grid ``arange(n + 1) * dt`` of
+a record is the start of that grid lengthened to the batch's longest record, and the
+solver is causal, so each edge is the first samples of its row.  Each result goes into
+the run's memo under the exact key :func:`~pinlib.engines.pushline.waves.simulate_edge`
+asks for, and the analyses made
 afterwards take it there, with the figures they will read off each edge (edge time,
 overshoot, undershoot, threshold crossings, re-crossings: :mod:`pinlib.engines.pushline.
 batchfigures`, read over the whole batch at once); an edge the prefetch did not solve (a
@@ -142,11 +144,13 @@ def _solve(sections: list, batch: list, uses: dict) -> int:
             return 0
     if caught:
         return 0  # the engine solves these itself, so that its notes carry the warning
-    stored, rows = 0, {}
+    stored, rows, grids = 0, {}, {}
     for j, (key, g, _, _) in enumerate(batch):
         unit = v[j, :g.t.size]  # views of the batch (the engine copies what it keeps)
         if is_settled(unit):
-            memo.keep(key, (g.t, unit, True))
+            # one grid per step, its records' grids views of it (as the batch's rows)
+            grid = grids.setdefault(float(dt[j]), t[j].copy())
+            memo.keep(key, (grid[:g.t.size], unit, True))
             stored += 1
             rows.setdefault(float(dt[j]), []).extend(
                 (j, g.t.size, key, use) for use in uses.get(key, ()))

@@ -117,7 +117,8 @@ def tree_rows(t, vdd, t_ramp, r_source, sections, node_caps, source, edge, *,
     volts = _in_parts(net, delays, v_src, n_t)                  # (merged, n, B)
     if sign < 0:
         volts = vdd_b - volts
-    return TreeWaveform(t, np.transpose(volts[node_of], (2, 0, 1)))
+    # each case's samples contiguous, as the one-grid path gives them
+    return TreeWaveform(t, np.ascontiguousarray(np.transpose(volts[node_of], (2, 0, 1))))
 
 
 def _rows(net: Network, cols) -> Network:
