@@ -138,3 +138,19 @@ def test_an_edge_with_batched_figures_makes_its_record_when_read():
     assert lazy.crossing(1.2) == plain.crossing(1.2)
     assert (lazy.edge, lazy.v_from, lazy.v_to, lazy.t_edge, lazy.settled) == (
         plain.edge, plain.v_from, plain.v_to, plain.t_edge, plain.settled)
+
+
+def test_the_edges_into_the_pins_alone_are_the_engines_own():
+    # derived from the arithmetic being elementwise (a Newton step per element): each
+    # edge of the batched array is the scalar call's to the last bit
+    from pinlib.physics import driver as drv
+
+    d = load_design(DEMO)
+    inputs = _inputs(d, ["display-controller-spi", "nor-flash-spi", "adc-spi", "dac-spi"])
+    with memo.run_scope() as held:
+        batchsolve.prefetch(inputs)
+        keys = [k for k in held if k[0] == "pushline.edge_alone"]
+        assert len(keys) >= 4
+        for _, r, t_ramp, c in keys:
+            assert held[("pushline.edge_alone", r, t_ramp, c)] == float(
+                drv.edge_time(r, t_ramp, c))

@@ -260,3 +260,19 @@ def test_missing_library_folder_blames_its_source(tmp_path, monkeypatch, capsys)
     with pytest.raises(DesignError) as info:
         load_design(own)
     assert (info.value.line, info.value.field) == (3, "library[0]")
+
+
+def test_a_swap_keeping_the_other_buses_builds_the_same_design():
+    # derived from the buses' tables: a bus without the swapped reference is built from
+    # the same tables, so the design's own bus stands for it (the candidates' ranking)
+    design = load_design(Path(__file__).resolve().parents[1] / "workbooks" / "designs"
+                         / "demo-board.toml")
+    for ref, part in (("U12", "adc-spi"), ("U4", "rtc-i2c"), ("U1", "mcu-3v3")):
+        full = design.with_parts({ref: part})
+        kept = design.with_parts({ref: part}, keep_others=True)
+        assert kept.buses == full.buses and kept.couplings == full.couplings
+        mine = [b.id for b in design.buses if any(d.ref == ref for d in b.devices)]
+        assert mine and all((b is o) == (b.id not in mine)
+                            for b, o in zip(kept.buses, design.buses, strict=True))
+    with pytest.raises(DesignError):
+        design.with_parts({"U99": "adc-spi"}, keep_others=True)

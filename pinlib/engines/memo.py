@@ -93,11 +93,11 @@ def transient() -> Iterator[None]:
         yield
         return
     # A dict keeps its keys in the order they came, and nothing inside the block removes
-    # a key that was there before it: the block's own keys are those after the first
-    # ``before`` (its cost is what the block added, not what the scope holds).
+    # a key that was there before it: the block's own keys are the last ``len - before``,
+    # read from the end (its cost is what the block added, not what the scope holds).
     before = len(memo)
     try:
         yield
     finally:
-        for key in list(itertools.islice(memo, before, None)):
+        for key in list(itertools.islice(reversed(memo), max(0, len(memo) - before))):
             del memo[key]

@@ -7,9 +7,10 @@ is the waveform solves, most of a push-pull evaluation's time: the candidates ar
 :data:`CHUNK` at a time, the inputs of every line analysis each will make are gathered
 (:func:`pinlib.engines.pushpull.line_inputs`) and their edges solved together
 (:func:`pinlib.engines.pushline.batchsolve.prefetch`, one solver call per chain of
-sections and time step) into a memo that lives for the chunk, with the figures read
-off them (:mod:`pinlib.engines.pushline.batchfigures`); the engine's analyses then take
-them from there.  Edges the prefetch leaves to the engine are solved one at a
+sections and group of like time steps, each edge on its own grid) into a memo that
+lives for the chunk, with the figures read off them
+(:mod:`pinlib.engines.pushline.batchfigures`); the engine's analyses then take them
+from there.  Edges the prefetch leaves to the engine are solved one at a
 time: a lumped line's (closed form), a record that had to be lengthened to settle, the
 boards at the corners of a bus's tolerances (each candidate's corners are found by its own
 results), and a series resistor "auto" chose on a short line.
@@ -31,9 +32,9 @@ __all__ = ["CHUNK", "evaluate_batched", "batched_note"]
 
 #: Candidates whose edges are solved together (and held in memory until their
 #: evaluations end; ranking 1,000 SPI parts at the demo's display position peaks near
-#: 300 MB of process, 130 MB at 64 a chunk).  The more candidates, the fewer solver
-#: calls (each is one time step and chain of sections, and the steps of a position's
-#: candidates take few distinct values): 256 candidates take about as many calls as 64.
+#: 340 MB of process).  The more candidates, the more edges each solver call takes (a
+#: call is one chain of sections and the steps within ``batchsolve.STEP_RATIO`` of each
+#: other: 19-23 calls for 256 candidates at the display position).
 CHUNK = 256
 
 
@@ -64,7 +65,7 @@ def evaluate_batched(design: Design, ref: str, parts: list[Part],
             swapped, inputs = {}, []
             for p in chunk:
                 try:
-                    sw = swapped[p.id] = design.with_parts({ref: p.id})
+                    sw = swapped[p.id] = design.with_parts({ref: p.id}, keep_others=True)
                     for b in buses:
                         inputs += line_inputs(sw.bus(b.id), sw)
                 except PinlibError:
@@ -73,7 +74,7 @@ def evaluate_batched(design: Design, ref: str, parts: list[Part],
             done = []  # yielded after the scope ends: no memo outlives the chunk
             for p in chunk:
                 try:
-                    sw = swapped.get(p.id) or design.with_parts({ref: p.id})
+                    sw = swapped.get(p.id) or design.with_parts({ref: p.id}, keep_others=True)
                     with memo.transient():  # its own solves (corners...) go with it
                         done.append((p, [evaluate_bus(sw.bus(b.id), sw) for b in buses]))
                 except PinlibError as err:

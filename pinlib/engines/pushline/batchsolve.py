@@ -6,11 +6,13 @@ time is its waveform solves, one :func:`pinlib.physics.waveform.distributed_resp
 call per edge.  :func:`prefetch` takes the inputs of every variant's line analyses
 (:class:`~pinlib.engines.pushline.line.LineInputs`), works out the edges each will solve
 with the engine's own steps (driver models, electrical length, :func:`edge_plan`, the
-grid of :func:`edge_grid`), and solves the edges that share a chain of sections and a
-time step in one call: the grid ``arange(n + 1) * dt`` of a shorter record is the start
-of a longer one's, and the solver is causal, so each edge is the first samples of the
-longest record of its group.  Each result goes into the run's memo under the exact key
-:func:`~pinlib.engines.pushline.waves.simulate_edge` asks for, and the analyses made
+grid of :func:`edge_grid`), and solves the edges that share a chain of sections in one
+call per group of time steps within :data:`STEP_RATIO` of each other, each edge on its
+own grid (:mod:`pinlib.physics.waveform.rowgrids`): the grid ``arange(n + 1) * dt`` of
+a record is the start of that grid lengthened to the batch's longest record, and the
+solver is causal, so each edge is the first samples of its row.  Each result goes into
+the run's memo under the exact key :func:`~pinlib.engines.pushline.waves.simulate_edge`
+asks for, and the analyses made
 afterwards take it there, with the figures they will read off each edge (edge time,
 overshoot, undershoot, threshold crossings, re-crossings: :mod:`pinlib.engines.pushline.
 batchfigures`, read over the whole batch at once); an edge the prefetch did not solve (a
@@ -40,18 +42,26 @@ from pinlib.engines.pushline.line import (
     LineInputs,
     _driver_models,
     _electrical_length,
+    alone_inputs,
+    alone_key,
     line_stretches,
 )
 from pinlib.engines.pushline.termination import auto_ideal, chosen_series_resistor
 from pinlib.engines.pushline.waves import edge_grid, is_settled, unit_edge_key
 from pinlib.model.result import LineResult
+from pinlib.physics import driver as drv
 from pinlib.physics import waveform as wf
 
-__all__ = ["prefetch", "MAX_ELEMENTS"]
+__all__ = ["prefetch", "MAX_ELEMENTS", "STEP_RATIO"]
 
 #: Samples times edges in one batched solve, at most (about 32 MB per array the solver
 #: keeps; its own cap on a run's matrices then leaves the run length alone).
 MAX_ELEMENTS = 4_000_000
+#: The steps of one batched solve differ by at most this ratio: the solver marches them
+#: in lockstep, padded to the longest run, so a batch does about ``STEP_RATIO ** 1.5``
+#: times the work of its edges alone (1.1: about 15 % more for about a fifth of the
+#: solver calls of one call per step at the demo's display position).
+STEP_RATIO = 1.1
 
 
 def prefetch(inputs: Iterable[LineInputs]) -> int:
@@ -71,8 +81,10 @@ def prefetch(inputs: Iterable[LineInputs]) -> int:
     if not memo.active():
         return 0
     requests, uses = {}, {}
-    for li in inputs:
-        for req, use in _requests(li):
+    made = [(li, a) for li in inputs if (a := _analysis(li)) is not None]
+    _edges_alone([a for _, (a, _) in made])
+    for li, (a, pullup) in made:
+        for req, use in _requests(li, a, pullup):
             key = unit_edge_key(*req)
             if key not in requests and not memo.known(key):
                 requests[key] = req
@@ -85,11 +97,10 @@ def prefetch(inputs: Iterable[LineInputs]) -> int:
         except PinlibError:
             continue  # too many steps: the engine names the line
         if g.distributed:  # a lumped edge is a closed form, cheap on its own
-            groups.setdefault((tuple(g.sections), float(g.t[1])), []).append(
-                (key, g, r_source, t_ramp))
+            groups.setdefault(tuple(g.sections), []).append((key, g, r_source, t_ramp))
     stored = 0
-    for (sections, _), members in groups.items():
-        members.sort(key=lambda m: m[1].t.size)
+    for sections, members in groups.items():
+        members.sort(key=lambda m: -float(m[1].t[1]))  # by step, the coarsest first
         start = 0
         while start < len(members):
             end = _batch_end(members, start)
@@ -99,45 +110,59 @@ def prefetch(inputs: Iterable[LineInputs]) -> int:
 
 
 def _batch_end(members: list, start: int) -> int:
-    """The end of the batch from ``start`` (records sorted by length): at most
-    :data:`MAX_ELEMENTS` samples in all, each record padded to the batch's longest."""
-    end = start + 1
-    while end < len(members) and (end - start + 1) * members[end][1].t.size <= MAX_ELEMENTS:
+    """The end of the batch from ``start`` (steps sorted from the coarsest): steps within
+    :data:`STEP_RATIO` of the first, at most :data:`MAX_ELEMENTS` samples in all, each
+    record padded to the batch's longest."""
+    coarsest = float(members[start][1].t[1])
+    end, longest = start + 1, members[start][1].t.size
+    while end < len(members):
+        g = members[end][1]
+        longest = max(longest, g.t.size)
+        if coarsest > STEP_RATIO * float(g.t[1]) or (end - start + 1) * longest > MAX_ELEMENTS:
+            break
         end += 1
     return end
 
 
 def _solve(sections: list, batch: list, uses: dict) -> int:
-    """One distributed solve of a batch of unit edges on the longest of their grids, and
-    the figures read off them (``uses``: per key, the :class:`EdgeUse` asked for)."""
-    t = batch[-1][1].t
-    if not all(np.array_equal(t[:g.t.size], g.t) for _, g, _, _ in batch):
-        return 0  # not one grid: left to the engine
+    """One distributed solve of a batch of unit edges, each on its own grid padded to the
+    longest record (:mod:`pinlib.physics.waveform.rowgrids`), and the figures read off
+    them (``uses``: per key, the :class:`EdgeUse` asked for)."""
+    n = max(g.t.size for _, g, _, _ in batch)
+    dt = np.array([g.t[1] for _, g, _, _ in batch])
+    t = np.arange(n)[None, :] * dt[:, None]  # each row its own arange(n) * dt
+    if not all(np.array_equal(t[j, :g.t.size], g.t) for j, (_, g, _, _) in enumerate(batch)):
+        return 0  # not the engine's grids: left to the engine
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
         try:
             v = wf.distributed_response(
-                t, 1.0, np.array([m[3] for m in batch]), np.array([m[2] for m in batch]),
-                sections, np.array([m[1].c_lumped_far for m in batch])).v
+                t if dt.size > 1 else t[0], 1.0, np.array([m[3] for m in batch]),
+                np.array([m[2] for m in batch]), sections,
+                np.array([m[1].c_lumped_far for m in batch])).v
         except PinlibError:
             return 0
     if caught:
         return 0  # the engine solves these itself, so that its notes carry the warning
-    stored, rows = 0, []
+    stored, rows, grids = 0, {}, {}
     for j, (key, g, _, _) in enumerate(batch):
         unit = v[j, :g.t.size]  # views of the batch (the engine copies what it keeps)
         if is_settled(unit):
-            memo.keep(key, (t[:g.t.size], unit, True))
+            # one grid per step, its records' grids views of it (as the batch's rows)
+            grid = grids.setdefault(float(dt[j]), t[j].copy())
+            memo.keep(key, (grid[:g.t.size], unit, True))
             stored += 1
-            rows += [(j, g.t.size, key, use) for use in uses.get(key, ())]
-    store_figures(t, v, rows)
+            rows.setdefault(float(dt[j]), []).extend(
+                (j, g.t.size, key, use) for use in uses.get(key, ()))
+    for j, got in ((r[0][0], r) for r in rows.values() if r):
+        store_figures(t[j], v, got)  # the figures of the rows of one step together
     return stored
 
 
-def _requests(li: LineInputs) -> list[tuple]:
-    """The edges the analysis of ``li`` will solve: ``((stretches, r_source, t_ramp,
-    c_far, distributed), EdgeUse)`` each, by the engine's own steps; none when a step
-    refuses (the analysis itself then says why)."""
+def _analysis(li: LineInputs) -> tuple[LineAnalysis, dict] | None:
+    """The analysis of ``li`` up to its drivers' models (and the pull-up of each
+    open-drain driver), by the engine's steps; None where a step refuses or no driver
+    is left (the analysis itself then says why)."""
     try:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")  # the analysis notes its own warnings
@@ -145,8 +170,39 @@ def _requests(li: LineInputs) -> list[tuple]:
                              list(li.drivers), list(li.loads), list(li.receivers),
                              result=LineResult(signal=li.signal))
             pullup = _driver_models(a, a.result)
-            if not a.drivers:
-                return []
+    except PinlibError:
+        return None
+    return (a, pullup) if a.drivers else None
+
+
+def _edges_alone(analyses: list) -> None:
+    """Every driver's edge into the pins alone, of all ``analyses`` in one array (the
+    arithmetic is elementwise: each is the engine's own to the last bit), into the
+    run's memo under :func:`_edge_alone`'s key."""
+    todo = {}
+    for a in analyses:
+        for x in alone_inputs(a):
+            key = alone_key(*x)
+            if key not in todo and not memo.known(key):
+                todo[key] = x
+    if not todo:
+        return
+    r, t_ramp, c = (np.array(col, dtype=float) for col in zip(*todo.values(), strict=True))
+    try:
+        got = np.atleast_1d(drv.edge_time(r, t_ramp, c))
+    except PinlibError:
+        return  # a value the physics refuses: the engine meets it on its own
+    for key, value in zip(todo, got, strict=True):
+        memo.keep(key, float(value))
+
+
+def _requests(li: LineInputs, a: LineAnalysis, pullup: dict) -> list[tuple]:
+    """The edges the analysis of ``li`` (``a``: its drivers' models made) will solve:
+    ``((stretches, r_source, t_ramp, c_far, distributed), EdgeUse)`` each, by the
+    engine's own steps; none when a step refuses (the analysis itself then says why)."""
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
             _electrical_length(a, [])
     except PinlibError:
         return []

@@ -220,21 +220,7 @@ def _electrical_length(a: LineAnalysis, notes: list) -> None:
     """Electrical length against the fastest edge into the pins alone: of either corner
     of a push-pull driver whose part states a fast one (its edge makes the line long
     sooner)."""
-    alone = []
-    # every pin's capacitance once; each driver's load is all of them but its own
-    c_in = {id(p.device): p.c_in for p in a.loads}
-    c_all = sum(c_in.values())
-    for d in a.drivers:
-        m = a.models[d.ref]
-        c_pins = c_all - c_in.get(id(d.device), 0.0) + a.line.extra_capacitance
-        alone.append(_edge_alone(m.r_fall, m.t_ramp_fall, c_pins))
-        if d.pin.drive != "open-drain":
-            alone.append(_edge_alone(m.r_rise, m.t_ramp_rise, c_pins))
-            if m.fast is not None:
-                f = m.fast
-                alone += [_edge_alone(f.r_rise, f.t_ramp_rise, c_pins),
-                          _edge_alone(f.r_fall, f.t_ramp_fall, c_pins)]
-    a.edge_alone = min(alone)
+    a.edge_alone = min(_edge_alone(*x) for x in alone_inputs(a))
     a.long, a.ratio = line_model(a.stretches, a.edge_alone,
                                  td=a.delay if a.net is not None else None)
     notes.append(f"one-way delay {_fmt(a.delay, 's')} is {a.ratio:.2f} of the driver's "
@@ -243,9 +229,33 @@ def _electrical_length(a: LineAnalysis, notes: list) -> None:
                  f"({LONG_LINE_RULE})")
 
 
+def alone_inputs(a: LineAnalysis) -> list[tuple[float, float, float]]:
+    """``(r, t_ramp, c_pins)`` of each edge :func:`_electrical_length` compares (the
+    drivers' models filled)."""
+    out = []
+    # every pin's capacitance once; each driver's load is all of them but its own
+    c_in = {id(p.device): p.c_in for p in a.loads}
+    c_all = sum(c_in.values())
+    for d in a.drivers:
+        m = a.models[d.ref]
+        c_pins = c_all - c_in.get(id(d.device), 0.0) + a.line.extra_capacitance
+        out.append((m.r_fall, m.t_ramp_fall, c_pins))
+        if d.pin.drive != "open-drain":
+            out.append((m.r_rise, m.t_ramp_rise, c_pins))
+            if m.fast is not None:
+                f = m.fast
+                out += [(f.r_rise, f.t_ramp_rise, c_pins), (f.r_fall, f.t_ramp_fall, c_pins)]
+    return out
+
+
+def alone_key(r: float, t_ramp: float, c_pins: float) -> tuple:
+    """The run memo's key of :func:`_edge_alone` (a batched study stores it ahead)."""
+    return ("pushline.edge_alone", r, t_ramp, c_pins)
+
+
 def _edge_alone(r: float, t_ramp: float, c_pins: float) -> float:
     """A driver's 10-90 % edge into the pins alone (once per run for equal inputs). [s]"""
-    return memo.remember(("pushline.edge_alone", r, t_ramp, c_pins),
+    return memo.remember(alone_key(r, t_ramp, c_pins),
                          lambda: float(drv.edge_time(r, t_ramp, c_pins)))
 
 

@@ -77,16 +77,18 @@ def _auto_series(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
     """``series_resistor = "auto"``: none on a short line that passes what a series
     resistor cures, else ``Z0 - r_out`` to the nearest E24 value."""
     bare = _cases(a, 0.0, pullup)
-    bare_checks = _si_checks(a, bare, clock, clock_line, warn_margin)
     # Only what a series resistor can cure decides (a slow edge or a level it cannot),
-    # so the choice does not depend on the clock.
-    clean = all(c.status != "fail" for c in bare_checks if c.id in _TERMINATION_CURES)
+    # so the choice does not depend on the clock; a long line is terminated whatever
+    # its checks say, so they are made for a short one only.
+    clean = not a.long and all(
+        c.status != "fail" for c in _si_checks(a, bare, clock, clock_line, warn_margin)
+        if c.id in _TERMINATION_CURES)
     r_drv, a.rs_ideal = auto_ideal(a)
-    if (not a.long and clean) or a.rs_ideal is None:
+    if clean or a.rs_ideal is None:
         a.rs, a.cases = 0.0, bare
         why = ("electrically short, and no overshoot, undershoot or ringing check "
                "fails without one"
-               if (not a.long and clean) else "no line impedance or push-pull driver")
+               if clean else "no line impedance or push-pull driver")
         notes.append(f"auto series resistor: none ({why})")
         return
     a.rs = chosen_series_resistor(a.z0, r_drv)

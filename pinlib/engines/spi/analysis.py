@@ -6,6 +6,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+import numpy as np
+
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError
 from pinlib.engines.pushline import (
@@ -77,9 +79,13 @@ class SpiAnalysis:
         ``(clock, name, source)``, the name as ``"cipo-setup U2"`` or ``"f_max U1"`` and
         the source of its limit; an unlimited bus gives ``[(inf, "nothing", "")]``. The
         first sets :meth:`max_clock`. [Hz]"""
-        out = [(float(max_clock([t.a], [_finite_or_inf(t.required - t.b)])),
-                f"{t.id} {t.subject}", t.source or "not recorded by the part: taken as 0")
-               for t in self.terms]
+        # one margin per row: each row's clock is its own margin's (elementwise)
+        f_terms = np.atleast_1d(max_clock([[t.a] for t in self.terms],
+                                          [[_finite_or_inf(t.required - t.b)]
+                                           for t in self.terms])) if self.terms else ()
+        out = [(float(f), f"{t.id} {t.subject}",
+                t.source or "not recorded by the part: taken as 0")
+               for f, t in zip(f_terms, self.terms, strict=True)]
         out += [(float(f), f"f_max {ref}", source) for ref, f, source in self.f_limits]
         out.sort(key=lambda x: x[0])
         return out or [(math.inf, "nothing", "")]
@@ -88,9 +94,12 @@ class SpiAnalysis:
         """Highest clock at which every line's far-end edge keeps within
         :data:`~pinlib.engines.pushline.EDGE_FRACTION` of the period (a rule of thumb),
         and the line that sets it. [Hz]"""
-        got = [(float(max_clock([EDGE_FRACTION], [_finite_or_inf(e)])), sig)
-               for sig, e in self.edge_terms]
-        return min(got, default=(math.inf, "nothing"))
+        if not self.edge_terms:
+            return (math.inf, "nothing")
+        f_edges = np.atleast_1d(max_clock([[EDGE_FRACTION]] * len(self.edge_terms),
+                                          [[_finite_or_inf(e)] for _, e in self.edge_terms]))
+        return min((float(f), sig) for f, (sig, _) in zip(f_edges, self.edge_terms,
+                                                          strict=True))
 
 
 def _finite_or_inf(x: float) -> float:

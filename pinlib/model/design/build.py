@@ -46,24 +46,31 @@ class Design:
                     return b, d
         raise KeyError(ref)
 
-    def with_parts(self, swaps: dict[str, str]) -> Design:
-        """The same design with parts substituted by reference: ``{"U4": "eeprom-alt"}``."""
+    def with_parts(self, swaps: dict[str, str], *, keep_others: bool = False) -> Design:
+        """The same design with parts substituted by reference: ``{"U4": "eeprom-alt"}``.
+
+        ``keep_others``: the buses with none of the references are this design's own
+        (the file's tables built again would give the same buses; a study that swaps
+        one position many times builds only the buses at that position)."""
         # the file's line index is the same for every swap (read-only): made once
         return _build(self._raw, self.path, self.library, self.text, swaps,
-                      getattr(self, "_index", None))
+                      getattr(self, "_index", None), self if keep_others else None)
 
     _raw: RawDesign | None = None
 
 
 def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict,
-           index: dict | None = None) -> Design:
+           index: dict | None = None, kept: Design | None = None) -> Design:
     index = line_index(text) if index is None else index
     fname = str(path) if path else None
     r = _Resolver(library, fname, index, swaps)
-    r.geometries = _geometries(raw, r.err)
+    r.geometries = _geometries(raw, r.err) if kept is None else kept.geometries
     buses = []
     ids: set[str] = set()
     for bi, rb in enumerate(raw.bus):
+        if kept is not None and not any(d.ref in swaps for d in _raw_devices(rb)):
+            buses.append(kept.buses[bi])  # built from the same tables before
+            continue
         buses.append(_bus(rb, ("bus", bi), ids, r))
     _one_part_per_reference(buses, r.err, fname, index)
     unknown = set(swaps) - r.swapped
@@ -77,6 +84,13 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict,
     object.__setattr__(design, "_raw", raw)
     object.__setattr__(design, "_index", index)
     return design
+
+
+def _raw_devices(rb: RawBus):
+    """Every device of a bus's table and of its segments' tables."""
+    yield from rb.devices
+    for seg in rb.segment:
+        yield from seg.devices
 
 
 def _bus(rb: RawBus, bloc, ids: set[str], r: _Resolver) -> Bus:

@@ -17,6 +17,7 @@ from pinlib.core.errors import InputError
 from pinlib.physics.rc import ramp_rc_response
 from pinlib.physics.waveform.march import _batch_shape, _non_negative
 from pinlib.physics.waveform.metrics import _edge_sign
+from pinlib.physics.waveform.rowgrids import tree_rows
 from pinlib.physics.waveform.tree import _tree
 
 __all__ = ["Waveform", "lumped_response", "distributed_response"]
@@ -104,7 +105,8 @@ def distributed_response(t, vdd, t_ramp, r_source, sections, c_load, c_mid=None,
     ----------
     t : array_like
         Uniform time grid starting at 0, shape ``(n,)``; its step ``dt`` is the
-        solver's step. [s]
+        solver's step.  Or one such grid per case, shape ``(B, n)``, each row its own
+        step (:mod:`pinlib.physics.waveform.rowgrids`; the batch is then ``(B,)``). [s]
     vdd : float or array_like
         Swing of the source (its high level; the low level is 0 V). [V]
     t_ramp : float or array_like
@@ -214,5 +216,9 @@ def distributed_response(t, vdd, t_ramp, r_source, sections, c_load, c_mid=None,
         caps[mid_junction] = caps[mid_junction] + np.asarray(c_mid, dtype=float)
         names[mid_junction] = "c_load + c_mid" if mid_junction == len(pairs) else "c_mid"
     chain = [(k, k + 1, z0, td) for k, (z0, td) in enumerate(pairs)]
-    w = _tree(t, vdd, t_ramp, r_source, chain, caps, 0, edge, stacklevel=4, cap_names=names)
+    if np.ndim(t) == 2:  # one grid per case: the row solver checks its own shapes
+        w = tree_rows(t, vdd, t_ramp, r_source, chain, caps, 0, edge, stacklevel=4)
+    else:
+        w = _tree(t, vdd, t_ramp, r_source, chain, caps, 0, edge, stacklevel=4,
+                  cap_names=names)
     return Waveform(w.t, w.v[..., -1, :], w.v if all_junctions else None)

@@ -264,9 +264,9 @@ def undershoot(v, v_low=0.0, *, n_valid=None):
     valid = _valid(v, n_valid)
     if valid is None:
         v_min, v_abs = v.min(axis=-1), np.abs(v).max(axis=-1)
-    else:
+    else:  # the largest |v| is the largest v or the negated smallest: the same number
         v_min = np.where(valid, v, np.inf).min(axis=-1)
-        v_abs = np.where(valid, np.abs(v), 0.0).max(axis=-1)
+        v_abs = np.maximum(np.where(valid, v, -np.inf).max(axis=-1), -v_min)
     dip = low - v_min
     scale = np.maximum(v_abs, np.abs(low))
     out = np.where(dip > _SETTLED_RTOL * scale, dip, 0.0)
