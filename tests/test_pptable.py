@@ -45,6 +45,17 @@ def link():
     return design, design.buses[0]
 
 
+
+def _route_with(folder, tolerances: str):
+    """tests/data/spi-route.toml with ``tolerances`` (TOML lines) after its supply,
+    written into ``folder``; the design and its one bus."""
+    text = (DATA / "spi-route.toml").read_text(encoding="utf-8").replace(
+        'supply = "3.3 V"\n', 'supply = "3.3 V"\n' + tolerances, 1)
+    path = folder / "route-tol.toml"
+    path.write_text(text, encoding="utf-8")
+    design = load_design(path)
+    return design, design.buses[0]
+
 def _factors(bus, n, seed):
     rng = np.random.default_rng(seed)
     return {spec[-1]: 1.0 + spec[3] * rng.uniform(-1.0, 1.0, n)
@@ -282,13 +293,8 @@ def routed(tmp_path_factory):
     """tests/data/spi-route.toml (invented) with a supply, a length and a capacitance
     tolerance: a receiver on a stub sees a stepped edge whose 10-90 % time jumps as the
     lengths move a step's plateau across 90 %."""
-    text = (DATA / "spi-route.toml").read_text(encoding="utf-8").replace(
-        'supply = "3.3 V"\n', 'supply = "3.3 V"\nsupply_tolerance = "5 %"\n'
-        'length_tolerance = "10 %"\n', 1)
-    path = tmp_path_factory.mktemp("route") / "route-tol.toml"
-    path.write_text(text, encoding="utf-8")
-    design = load_design(path)
-    bus = design.buses[0]
+    design, bus = _route_with(tmp_path_factory.mktemp("route"),
+                              'supply_tolerance = "5 %"\nlength_tolerance = "10 %"\n')
     n = 16
     factors = _factors(bus, n, seed=11)
     nominal = evaluate_bus(bus, design)
@@ -364,13 +370,7 @@ def test_a_table_takes_fewer_engine_runs_than_the_boards_it_stands_in_for(tmp_pa
     # the route's jump cells refine its table past the first grid's 7 x 3 nodes and 20
     # verification boards (66 nodes + 20 when the run is large); for a run of 60 boards
     # the table must cost fewer than 60 engine runs, or the engine alone is cheaper
-    text = (DATA / "spi-route.toml").read_text(encoding="utf-8").replace(
-        'supply = "3.3 V"\n', 'supply = "3.3 V"\nsupply_tolerance = "5 %"\n'
-        'length_tolerance = "10 %"\n', 1)
-    path = tmp_path / "route-tol.toml"
-    path.write_text(text, encoding="utf-8")
-    design = load_design(path)
-    bus = design.buses[0]
+    design, bus = _route_with(tmp_path, 'supply_tolerance = "5 %"\nlength_tolerance = "10 %"\n')
     n = 60
     nominal = evaluate_bus(bus, design)
     first = pptable.NODES["length"] * pptable.NODES["supply"] + pptable.VERIFY
@@ -400,12 +400,7 @@ def test_a_flight_that_jumps_is_refined_and_left_to_the_engine(tmp_path, monkeyp
     from pinlib.engines import spi
     from pinlib.engines.pushline import Flight
 
-    text = (DATA / "spi-route.toml").read_text(encoding="utf-8").replace(
-        'supply = "3.3 V"\n', 'supply = "3.3 V"\nlength_tolerance = "10 %"\n', 1)
-    path = tmp_path / "route-tol.toml"
-    path.write_text(text, encoding="utf-8")
-    design = load_design(path)
-    bus = design.buses[0]
+    design, bus = _route_with(tmp_path, 'length_tolerance = "10 %"\n')
     nominal_cipo = sum(s.length for s in bus.lines["cipo"].sections)
     analysis = spi.spi_analysis
 
@@ -459,13 +454,7 @@ def test_a_yes_no_check_whose_status_moves_is_tabulated_by_its_nodes(tmp_path):
     # the ringing check (yes/no) turns from pass to warn and the latest flight moves
     # 1.8 ns earlier.  The table was refused ("its status moves"); now the cell where
     # the status changes is rough like a jump, and each board takes its nodes' status.
-    text = (DATA / "spi-route.toml").read_text(encoding="utf-8").replace(
-        'supply = "3.3 V"\n', 'supply = "3.3 V"\nsupply_tolerance = "5 %"\n'
-        'length_tolerance = "20 %"\n', 1)
-    path = tmp_path / "route-20.toml"
-    path.write_text(text, encoding="utf-8")
-    design = load_design(path)
-    bus = design.buses[0]
+    design, bus = _route_with(tmp_path, 'supply_tolerance = "5 %"\nlength_tolerance = "20 %"\n')
     nominal = evaluate_bus(bus, design)
     tables: dict = {}
     ppb.prepare_table(bus, design, nominal, tables, 1.0, 1e-6, 20_000)
