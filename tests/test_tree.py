@@ -142,6 +142,26 @@ def test_one_case_equals_the_batched_march(r_source):
     assert np.allclose(two.v[1], one.v, rtol=0, atol=1e-13)
 
 
+
+def test_one_case_in_a_ring_buffer_equals_the_whole_record(monkeypatch):
+    # derived: a long record of many ports keeps only one longest delay plus one run of
+    # launched waves; the same values are read back, so the voltages are equal bit for
+    # bit (a 32-branch star once left this path for the batched march, 2.4x slower)
+    from pinlib.physics.waveform import march
+
+    t = grid(12e-9)
+    sections = [(0, 1, 50.0, 0.613e-9), (1, 2, 65.0, 0.21e-9), (1, 3, 45.0, 1.27e-9),
+                (3, 4, 50.0, 0.33e-9)]
+    caps = [6e-12, 0.0, 4e-12, 2e-12, 4e-12]
+    whole = wf.tree_response(t, VDD, T_RAMP, 30.0, sections, caps, source=3)
+    calls = []
+    single = march._march_single
+    monkeypatch.setattr(march, "_march_single", lambda *a: calls.append(1) or single(*a))
+    monkeypatch.setattr(march, "_MAX_BUFFER_ELEMENTS", 64)
+    ring = wf.tree_response(t, VDD, T_RAMP, 30.0, sections, caps, source=3)
+    assert calls  # still the one-case path, now on a ring
+    np.testing.assert_array_equal(ring.v, whole.v)
+
 def test_a_single_node():
     # derived: no line, the source behind r_source into the node's capacitance (lumped)
     t = grid(10e-9)

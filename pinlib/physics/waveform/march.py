@@ -269,8 +269,7 @@ def march(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
     block = _run_length(net, n_t)
     n_ports = net.port_node.size
     # one case on short runs, its launched waves kept whole (else the ring below)
-    if (n_b == 1 and n_ports and block <= _SINGLE_BLOCK
-            and n_ports * (net.port_delay.max() + n_t + block) <= _MAX_BUFFER_ELEMENTS):
+    if n_b == 1 and n_ports and block <= _SINGLE_BLOCK:
         return _march_single(net, v_src, n_t)
     src = net.source
     scan = _Scan(net.a, block)
@@ -339,11 +338,16 @@ def _march_single(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
     runs = -(-(n_t - 1) // block)
     n_all = 1 + runs * block
     pad = int(net.port_delay.max()) + 1
-    size = pad + n_all
+    # the launched waves of the whole record when they fit, else a ring of one longest
+    # delay plus one run (a run reads back at most that far, and writes after reading)
+    full = port_node.size * (pad + n_all) <= _MAX_BUFFER_ELEMENTS
+    size = pad + n_all if full else pad + block
     launched = np.zeros((port_node.size, size))
     flat_launched = launched.reshape(-1)
     reach = pad - 1 - net.port_delay[:, None] + np.arange(block + 1)[None, :]
-    flat = net.port_partner[:, None] * size + reach                      # (P, block + 1)
+    base = net.port_partner[:, None] * size                              # (P, 1)
+    flat = base + reach                                                  # (P, block + 1)
+    ahead = pad + np.arange(block)                                       # ring writes
     frac = net.port_frac[:, None] if np.any(net.port_frac > 0.0) else None
     weight = net.incidence * (2.0 * net.port_g[:, 0])[None, :]           # (N, P)
     src_cur = np.empty(n_all)
@@ -362,7 +366,7 @@ def _march_single(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
     volts[:, 0] = state[:, 0]
     column = state[:, :, None]
     for n in range(1, n_all, block):
-        got = flat_launched.take(flat + n)                               # (P, block + 1)
+        got = flat_launched.take(flat + n if full else base + (reach + n) % size)
         inc = got[:, 1:]
         if frac is not None:
             inc = inc + frac * (got[:, :-1] - inc)
@@ -372,7 +376,11 @@ def _march_single(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
         if forced:
             w[src] = v_forced[n:n + block]
         volts[:, n:n + block] = w
-        np.subtract(w.take(port_node, axis=0), inc, out=launched[:, pad + n:pad + n + block])
+        if full:
+            np.subtract(w.take(port_node, axis=0), inc,
+                        out=launched[:, pad + n:pad + n + block])
+        else:
+            launched[:, (ahead + n) % size] = w.take(port_node, axis=0) - inc
         state[:, 0] = w[:, -1]
         state[:, 1] = cur[:, -1]
     return volts[:, :n_t, None]
