@@ -38,7 +38,7 @@ import numpy as np
 
 from pinlib.core.errors import DesignError, InputError
 from pinlib.engines.opendrain.arith import fall_bounds, far_drivers, low_levels
-from pinlib.engines.opendrain.batchfigures import _figures, _one, _reduce
+from pinlib.engines.opendrain.batchfigures import _figures, _reduce, one
 from pinlib.engines.opendrain.batchgathered import line_from
 from pinlib.engines.opendrain.batchinputs import (
     Level,
@@ -250,7 +250,7 @@ def _sink_check_one(ctx, out: _Out, up: str, rows: list) -> BatchCheck | None:
     """:func:`_sink_check` at one variant in plain Python (None where a rating is not a
     positive finite number: the arrays then give the same answer as for many)."""
     currents = [float(i.max()) for i, _ in rows]
-    iols = [_one(d.i_ol) for _, d in rows]
+    iols = [one(d.i_ol) for _, d in rows]
     if not all(0.0 < x < math.inf for x in iols):
         return None
     k = 0  # the first largest ratio, NaN counted as the largest (as numpy's argmax)

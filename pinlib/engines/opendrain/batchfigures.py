@@ -53,8 +53,9 @@ def _figures(s: _Seg, figs: dict, out: _Out) -> dict:
     return res
 
 
-def _one(x) -> float | None:
-    """The one value of a figure at one variant (None stays None). [unit]"""
+def one(x) -> float | None:
+    """The one value of a number or an array of one element, as a float (None stays
+    None): a figure or a check's number at one variant. [unit]"""
     if x is None or type(x) is float:
         return x
     return float(x.item()) if hasattr(x, "item") else float(x)
@@ -70,17 +71,17 @@ def _figures_one(s: _Seg, figs: dict) -> dict:
     figure a view of one array of shape ``(1,)``."""
     res: dict = {}
     for name, pick in _WORST.items():
-        vals = [_one(figs[sig][name]) for sig in SIGNALS if figs[sig].get(name) is not None]
+        vals = [one(figs[sig][name]) for sig in SIGNALS if figs[sig].get(name) is not None]
         worst = vals[0] if vals else None
         for x in vals[1:]:
             worst = _worse(pick, worst, x)
         res[name] = worst
     for name in ("bus_capacitance", "rise_time", "fall_time", "pullup"):
         for sig in SIGNALS:
-            res[f"{name}_{sig}"] = _one(figs[sig].get(name))
+            res[f"{name}_{sig}"] = one(figs[sig].get(name))
     res["supply"] = float(s.seg.supply)
-    res["pullup_resistor"] = _one(s.lines["sda"].pullup)
-    res["rise_factor"] = _one(s.lines["sda"].rise_factor)
-    res.update({k: _one(x) for k, x in figs["segment"].items()})
+    res["pullup_resistor"] = one(s.lines["sda"].pullup)
+    res["rise_factor"] = one(s.lines["sda"].rise_factor)
+    res.update({k: one(x) for k, x in figs["segment"].items()})
     arr = np.array([math.nan if x is None else x for x in res.values()])
     return {k: None if x is None else arr[j:j + 1] for j, (k, x) in enumerate(res.items())}

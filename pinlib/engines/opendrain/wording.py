@@ -12,9 +12,8 @@ from __future__ import annotations
 
 import math
 
-import numpy as np
-
 from pinlib.engines.opendrain.arith import BY_PART, far_drivers
+from pinlib.engines.opendrain.batchfigures import one
 from pinlib.engines.opendrain.bridges import overdrive
 from pinlib.engines.opendrain.explain import SINK_MODEL, window_advice
 from pinlib.engines.opendrain.inputs import LineInputs, SegmentInputs, _default, _f
@@ -52,11 +51,6 @@ class Words:
         reads them."""
         return [(link, None, None) for link in self.ctx.links[self.seg_in.index]
                 if link.kind == "mosfet"]
-
-
-def one(x) -> float:
-    """The one value of a number or an array of one element. [unit]"""
-    return x if type(x) is float else float(np.reshape(x, -1)[0])
 
 
 def row_corner(bc) -> tuple[int, int]:

@@ -5,6 +5,7 @@ the checks of each line are worded by :mod:`.wording`."""
 
 from __future__ import annotations
 
+from pinlib.engines.opendrain.batchfigures import one
 from pinlib.engines.opendrain.explain import _UNITS, segment_notes
 from pinlib.engines.opendrain.inputs import (
     SegmentInputs,
@@ -20,7 +21,7 @@ from pinlib.engines.opendrain.rules import (
     SIGNALS,
     supply_range_text,
 )
-from pinlib.engines.opendrain.wording import Words, line, make, one, row_corner
+from pinlib.engines.opendrain.wording import Words, line, make, row_corner
 from pinlib.model.result import Group, check_true
 
 #: The units of the segment's own figures (the lines' are in ``explain._UNITS``).
