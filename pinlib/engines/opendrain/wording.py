@@ -182,14 +182,20 @@ def _v_ol(w: Words, ln: LineInputs, far: list) -> None:
         _failed(chk, f"receivers {', '.join(failing)} read the low level as high: a larger "
                      "pull-up, a stronger sink, smaller series resistors, or a translator")
     w.grp.add(chk)
-    nm = w.peek("noise-margin-low")
-    if nm is not None and nm.signal == up:
-        w.take("noise-margin-low")
-        _, c = row_corner(nm)
-        w.grp.add(make(nm, lim.source_noise,
-                       f"{up} low-level noise margin {_f(nm.value[0], 'V')} (lowest VIL − low "
-                       f"level, {_CORNERS[c]}) against {lim.v_nl_rel:g}·VDD", subject=up))
+    _noise_margin(w, up, "low", "lowest VIL − low level", lim.v_nl_rel)
 
+
+
+def _noise_margin(w: Words, up: str, side: str, basis: str, rel: float) -> None:
+    """The line's low- or high-level noise margin, when the batch made one for it."""
+    nm = w.peek(f"noise-margin-{side}")
+    if nm is None or nm.signal != up:
+        return
+    w.take(f"noise-margin-{side}")
+    _, c = row_corner(nm)
+    w.grp.add(make(nm, w.lim.source_noise,
+                   f"{up} {side}-level noise margin {_f(nm.value[0], 'V')} ({basis}, "
+                   f"{_CORNERS[c]}) against {rel:g}·VDD", subject=up))
 
 def _conditional_on_r_on(w: Words, far: list, chk: Check) -> None:
     """A low level computed through a pass transistor whose on-resistance is not assured
@@ -247,13 +253,7 @@ def _v_oh(w: Words, ln: LineInputs, rp_hi: float) -> None:
                      "a rail they accept, put a level translator between, or lower the pull-up "
                      "(leakage drop)")
     w.grp.add(chk)
-    nh = w.peek("noise-margin-high")
-    if nh is not None and nh.signal == up:
-        w.take("noise-margin-high")
-        _, c = row_corner(nh)
-        w.grp.add(make(nh, lim.source_noise,
-                       f"{up} high-level noise margin {_f(nh.value[0], 'V')} (high level − "
-                       f"highest VIH, {_CORNERS[c]}) against {lim.v_nh_rel:g}·VDD", subject=up))
+    _noise_margin(w, up, "high", "high level − highest VIH", lim.v_nh_rel)
 
 
 def _fall(w: Words, ln: LineInputs, far: list) -> None:
