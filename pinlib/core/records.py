@@ -42,7 +42,6 @@ import datetime as _dt
 import re
 import types
 import typing
-from dataclasses import dataclass
 
 from pinlib.core import messages as M
 from pinlib.core.errors import PinlibError
@@ -54,19 +53,22 @@ _MISSING = object()
 _FAIL = object()  # what a checking function returns after recording its issue
 
 
-@dataclass(frozen=True)
 class Issue:
     """One problem of a table: ``loc`` (keys and indexes from the root), ``kind``
     (``missing``, ``unknown``, ``literal``, ``type``, ``rule``, ``value``), the problem
     text, the value given (None for a missing key), what was expected, and the pinlib
-    error a converter raised (its own expected value and hint), if any."""
+    error a converter raised (its own expected value and hint), if any.  (A plain class:
+    a dataclass costs a millisecond of every start.)"""
 
-    loc: tuple
-    kind: str
-    problem: str
-    value: object = None
-    expected: str | None = None
-    error: PinlibError | None = None
+    __slots__ = ("loc", "kind", "problem", "value", "expected", "error")
+
+    def __init__(self, loc: tuple, kind: str, problem: str, value: object = None,
+                 expected: str | None = None, error: PinlibError | None = None):
+        self.loc, self.kind, self.problem = loc, kind, problem
+        self.value, self.expected, self.error = value, expected, error
+
+    def __repr__(self):
+        return f"Issue({self.loc!r}, {self.kind!r}, {self.problem!r}, {self.value!r})"
 
 
 class RecordError(ValueError):
