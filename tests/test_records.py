@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import datetime as dt
 import pickle
+from pathlib import Path
 from typing import Annotated, Literal
 
 import pytest
@@ -234,3 +235,23 @@ def test_json_schema_from_the_declaration():
     assert "from" in props and "from_" not in props
     assert schema["$defs"]["Leaf"]["description"] == "A leaf table."
     assert schema["$defs"]["Leaf"]["required"] == ["size"]
+
+
+def test_the_formats_resolve_their_hints_only_when_first_used():
+    # importing the formats builds their classes without resolving a hint (the point of
+    # the records: class creation is cheap); the defaults made at import (Provenance(),
+    # Timing(), RawBoard()) resolve their own classes only
+    import subprocess
+    import sys
+
+    code = (
+        "from pinlib.library import schema\n"
+        "from pinlib.model.design import raw\n"
+        "done = sorted(c.__name__ for m in (schema, raw) for c in vars(m).values()\n"
+        "              if isinstance(c, type) and c.__dict__.get('__record_compiled__'))\n"
+        "print(','.join(done))\n"
+    )
+    root = Path(__file__).resolve().parents[1]
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         check=True, timeout=60, cwd=root).stdout.strip()
+    assert out.split(",") == ["Provenance", "RawBoard", "Timing"]

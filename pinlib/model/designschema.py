@@ -6,7 +6,7 @@ file writes (its pattern is the one the part-file schema uses,
 :func:`pinlib.library.jsonschema.quantity_pattern`), and TOML's missing null is taken out
 of the ``anyOf [..., null]`` of ``X | None``.  The schema ships inside the package as
 ``pinlib/model/design.schema.json`` (package data), so ``pinlib schema design`` prints it
-without building it; ``tests/test_designschema.py`` holds the shipped file equal to
+without building it; ``tests/test_cli_many.py`` holds the shipped file equal to
 :func:`design_json_schema`.  Rebuild it with
 ``python -m pinlib.model.designschema``.
 """
