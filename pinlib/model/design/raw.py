@@ -199,9 +199,9 @@ class RawCoupling(Record):
     the design or a described edge), their gap and the length they run together."""
 
     victim: Annotated[str, Rule(description="the open-drain line, 'BUS.SIGNAL', e.g. "
-                                             "'i2c0.scl'")]
+                                            "'i2c0.scl'")]
     segment: Annotated[str | None, Rule(description="the victim bus's segment the run is "
-                                                     "in (default: its first)")] = None
+                                                    "in (default: its first)")] = None
     aggressor: Annotated[str | RawEdge, Rule(
         description="a routed push-pull line, 'BUS.SIGNAL' (e.g. 'spi0.sclk'), or a "
                     "described edge {swing, edge_time, source_resistance}")]
