@@ -49,10 +49,10 @@ def generated_spi_part(base: Part, i: int) -> Part:
         if pin.r_out is not None:
             upd["r_out"] = _scaled(pin.r_out, fr)
         if pin.edges:
-            upd["edges"] = [e.model_copy(update={"rise": _scaled(e.rise, fr),
+            upd["edges"] = [e.copy(**{"rise": _scaled(e.rise, fr),
                                                  "fall": _scaled(e.fall, fr * 1.1)})
                             for e in pin.edges]
-        pins[name] = pin.model_copy(update={k: v for k, v in upd.items() if v is not None})
+        pins[name] = pin.copy(**{k: v for k, v in upd.items() if v is not None})
     tupd = {}
     for name in ("t_valid", "t_setup", "t_hold", "t_cs_setup", "t_cs_hold"):
         s = getattr(base.timing, name, None)
@@ -60,9 +60,9 @@ def generated_spi_part(base: Part, i: int) -> Part:
             tupd[name] = _scaled(s, fs)
     if base.timing.f_max is not None:
         tupd["f_max"] = _scaled(base.timing.f_max, 0.5 + (i % 7) * 0.25)
-    return base.model_copy(update={
+    return base.copy(**{
         "id": f"gen-spi-{i:05d}", "title": f"Generated SPI peripheral {i} (invented values)",
-        "pins": pins, "timing": base.timing.model_copy(update=tupd)})
+        "pins": pins, "timing": base.timing.copy(**tupd)})
 
 
 def add_generated(library, n: int) -> list[str]:

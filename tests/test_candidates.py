@@ -104,9 +104,9 @@ def _variants(n: int, seed: int = 7) -> Library:
                    "leakage": Sourced(float(rng.uniform(0.1e-6, 10e-6)), "A", "invented")}
             if pin.drive == "open-drain":
                 upd["i_ol"] = Sourced(float(rng.uniform(1e-3, 8e-3)), "A", "invented")
-            pins[name] = pin.model_copy(update=upd)
+            pins[name] = pin.copy(**upd)
         pid = f"variant-{i:04d}"
-        parts[pid] = b.model_copy(update={"id": pid, "pins": pins})
+        parts[pid] = b.copy(**{"id": pid, "pins": pins})
     return Library(parts=parts, files=lib.files, overrides=lib.overrides, problems=[],
                    folders=lib.folders)
 

@@ -11,8 +11,8 @@ import math
 import re
 
 import pytest
-from pydantic import BaseModel
 
+from pinlib.core.records import Record
 from pinlib.library.loader import BUILTIN_DIR, load_library
 from pinlib.library.schema import Part, Pin
 from pinlib.library.values import BASES, Sourced
@@ -38,8 +38,8 @@ def _values(obj, path=()):
     elif isinstance(obj, tuple):
         for i, v in enumerate(obj):
             yield from _values(v, path + (i,))
-    elif isinstance(obj, BaseModel):
-        for name in type(obj).model_fields:
+    elif isinstance(obj, Record):
+        for name in type(obj).fields():
             yield from _values(getattr(obj, name), path + (name,))
 
 

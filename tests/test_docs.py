@@ -46,7 +46,7 @@ def test_cli_page_names_every_command_and_option():
 
 
 def _fields(model) -> set[str]:
-    return set(model.model_fields)
+    return set(model.fields())
 
 
 def test_part_page_names_every_field():

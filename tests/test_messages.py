@@ -22,6 +22,7 @@ from pinlib.core import messages as M
 from pinlib.core import worklimits
 from pinlib.core.errors import PinlibError
 from pinlib.core.quantity import parse, parse_threshold
+from pinlib.core.records import Record, RecordError
 from pinlib.core.tomlfile import atomic_write, file_lock, tomllib
 from pinlib.core.tomlfile import load as load_toml
 from pinlib.library import loader, walk
@@ -703,6 +704,128 @@ def _(env):
 @case("OUTSIDE_RANGE")
 def _(env):
     return _fails(lambda e: e.part(_pin_value('"1 F"')), env)
+
+
+# ---------------------------------------------------------------- records: kinds and forms
+COUPLING = """
+[[coupling]]
+victim = "b.scl"
+aggressor = {aggressor}
+spacing = "0.2 mm"
+parallel_length = "1 cm"
+geometry = "g"
+"""
+
+
+class _Odd(Record):
+    """A record whose field takes two kinds (no file format has one)."""
+
+    when: int | bool
+
+
+class _Unsupported(Record):
+    """A record declared with a type the records cannot check."""
+
+    items: set[int]
+
+
+def _placed(err, field: str):
+    assert err.field == field and err.line, (err.field, err.line)
+    return err
+
+
+@case("NOT_TEXT")
+def _(env):
+    err = _fails(lambda e: e.part(PART.format(id="p").replace('"Team target"', "5")), env)
+    return _placed(err, "title")
+
+
+@case("NOT_TRUE_OR_FALSE")
+def _(env):
+    # a strict kind: "yes" (taken as true before the records) is refused
+    err = _fails(lambda e: e.part(PART.format(id="p").replace(
+        'category = "sensor"\n', 'category = "sensor"\nabstract = "yes"\n')), env)
+    return _placed(err, "abstract")
+
+
+@case("NOT_WHOLE_NUMBER")
+def _(env):
+    err = _fails(lambda e: e.design(SPI_BUS.replace('clock = "10 MHz"',
+                                                    'clock = "10 MHz"\nspi_mode = 2.0')), env)
+    return _placed(err, "bus[0].spi_mode")
+
+
+@case("NOT_NUMBER")
+def _(env):
+    err = _fails(lambda e: e.design(I2C_BUS, head=HEAD.replace("er = 4.2", 'er = "4.2"')), env)
+    return _placed(err, "board.geometry.g.er")
+
+
+@case("NOT_DATE")
+def _(env):
+    err = _fails(lambda e: e.part(PART.format(id="p").replace(
+        'category = "sensor"\n', 'category = "sensor"\nprovenance = { recorded = "May" }\n')),
+        env)
+    return _placed(err, "provenance.recorded")
+
+
+@case("NOT_TABLE")
+def _(env):
+    err = _fails(lambda e: e.part(PART.format(id="p").replace(
+        'supply = { min = "1.7 V", max = "5.5 V" }', 'supply = "3.3 V"')), env)
+    return _placed(err, "supply")
+
+
+@case("NOT_ARRAY")
+def _(env):
+    err = _fails(lambda e: e.part(_pin_value('"8 pF"\nedges = "fast"')), env)
+    return _placed(err, "pins.sda.edges")
+
+
+@case("NOT_TEXT_OR_TABLE")
+def _(env):
+    err = _fails(lambda e: e.design(I2C_BUS + COUPLING.format(aggressor="5")), env)
+    return _placed(err, "coupling[0].aggressor")
+
+
+@case("WRONG_KIND")
+def _(env):
+    with pytest.raises(RecordError) as info:
+        _Odd.validate({"when": "soon"})
+    return str(info.value)
+
+
+@case("TEXT_WRONG_FORM")
+def _(env):
+    err = _fails(lambda e: e.part(PART.format(id="Team_Part")), env)
+    return _placed(err, "id")
+
+
+@case("TEXT_TOO_SHORT", M.TEXT_TOO_SHORT.format(n=1))
+def _(env):
+    err = _fails(lambda e: e.design(I2C_BUS.replace('ref = "U2"', 'ref = ""')), env)
+    return _placed(err, "bus[0].devices[1].ref")
+
+
+@case("TEXT_TOO_LONG", M.TEXT_TOO_LONG.format(n=40))
+def _(env):
+    err = _fails(lambda e: e.design(I2C_BUS.replace('ref = "U2"', f'ref = "{"U" * 41}"')), env)
+    return _placed(err, "bus[0].devices[1].ref")
+
+
+@case("RECORD_FROZEN", M.RECORD_FROZEN.format(record="Part", name="title"))
+def _(env):
+    lib = env.part(PART.format(id="p"))
+    with pytest.raises(AttributeError) as info:
+        lib.parts["p"].title = "changed"
+    return str(info.value)
+
+
+@case("RECORD_FIELD_TYPE", M.RECORD_FIELD_TYPE.format(type="set[int]"))
+def _(env):
+    with pytest.raises(TypeError) as info:
+        _Unsupported.validate({"items": [1]})
+    return str(info.value)
 
 
 # ---------------------------------------------------------------- library: field paths

@@ -1,5 +1,5 @@
-"""pinlib.cli.startup: pydantic's plugin discovery is off while a command runs, a
-user's own setting wins, and neither the process nor its children keep the change."""
+"""pinlib.cli.startup and the program: BLAS on one thread unless the user chose (children
+get the user's environment), the garbage collector off for the program's command."""
 
 from __future__ import annotations
 
@@ -11,8 +11,6 @@ import pytest
 from pinlib import cli
 from pinlib.cli import startup
 
-VAR = startup.PLUGINS_VARIABLE
-
 
 @pytest.fixture(autouse=True)
 def _collector_back_on():
@@ -20,44 +18,6 @@ def _collector_back_on():
     this test process goes on."""
     yield
     gc.enable()
-
-
-def _seen_during_a_command(monkeypatch) -> list:
-    seen = []
-
-    def fake_main(argv):
-        seen.append((os.environ.get(VAR), startup.child_environment().get(VAR, "absent")))
-        return 0
-
-    monkeypatch.setattr(cli, "_main", fake_main)
-    assert cli.main(["check", "x.toml"]) == 0
-    return seen
-
-
-def test_discovery_off_during_a_command_and_restored_after(monkeypatch):
-    monkeypatch.delenv(VAR, raising=False)
-    assert _seen_during_a_command(monkeypatch) == [("__all__", "absent")]
-    assert VAR not in os.environ
-
-
-def test_a_users_setting_wins_and_reaches_children(monkeypatch):
-    monkeypatch.setenv(VAR, "")  # empty: every plugin stays on
-    assert _seen_during_a_command(monkeypatch) == [("", "")]
-    assert os.environ[VAR] == ""
-
-
-def test_restored_when_the_command_fails(monkeypatch):
-    monkeypatch.delenv(VAR, raising=False)
-
-    def failing(argv):
-        raise SystemExit(2)
-
-    monkeypatch.setattr(cli, "_main", failing)
-    try:
-        cli.main(["--no-such-option"])
-    except SystemExit:
-        pass
-    assert VAR not in os.environ
 
 
 def test_the_program_returns_mains_code_and_freezes_what_is_left(monkeypatch):

@@ -14,7 +14,7 @@ import importlib
 import sys
 
 from pinlib import __version__
-from pinlib.cli.startup import one_blas_thread, pydantic_plugins_off
+from pinlib.cli.startup import one_blas_thread
 from pinlib.core.errors import PinlibError
 
 __all__ = ["main", "entry", "COMMANDS"]
@@ -59,7 +59,7 @@ def entry() -> int:
     for a process that ends when it returns.
 
     The cyclic garbage collector is off for the command (:func:`gc.disable`): while
-    numpy, pydantic, the library and the engines load, its collections walk the many
+    numpy, the library and the engines load, its collections walk the many
     objects they make, which all live until the process ends (about a tenth of a
     ``pinlib check``'s start-up), and a command's own work makes little cyclic garbage
     (measured: the same peak memory for ``check --monte-carlo 20000 --corners`` and
@@ -67,7 +67,7 @@ def entry() -> int:
     freed by reference counting as before; the workbench's server is a process of its
     own.  Before the interpreter ends, the objects left are moved out of the
     collector's sight (:func:`gc.freeze`): its last collection would walk every object
-    of numpy, pydantic and the library (tens of ms) to free memory the ending process
+    of numpy and the library (tens of ms) to free memory the ending process
     gives back anyway.  The atexit handlers (the fit store) and the flushing of standard
     output run as before; pinlib's own files are closed by then.  Callers of
     :func:`main` in a process that goes on are untouched.
@@ -86,8 +86,7 @@ def main(argv: list[str] | None = None) -> int:
     """Run one command; Ctrl-C at any point (imports, argument parsing, long work) ends it
     with one line on standard error and exit code 130 (128 + SIGINT), never a traceback."""
     try:
-        with pydantic_plugins_off():  # pinlib.cli.startup: why, and how a user keeps them
-            return _main(argv)
+        return _main(argv)
     except KeyboardInterrupt:
         return _interrupted()
 

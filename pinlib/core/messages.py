@@ -16,9 +16,9 @@ or there is no snapshot to compare with.
 ``tests/test_messages.py`` triggers each of them once and checks the text.
 
 Notes (what an engine assumed, how a batch was evaluated) are not problems and stay
-beside the code that writes them.  Texts that pydantic writes itself for a value of
-the wrong type (``Input should be a valid string``) are passed through in pydantic's
-words.  Two ``ValueError`` texts of the converted modules are not here because no file
+beside the code that writes them.  A value of the wrong kind (text where a number is
+due, a number where a table is) is named by the record layer (:mod:`pinlib.core.records`)
+in the words below.  Two ``ValueError`` texts of the converted modules are not here because no file
 or command line reaches them, only a program calling pinlib wrongly: ``parse`` with an
 unknown expected unit, and ``Sourced.at`` of a relative threshold without a supply.
 """
@@ -96,7 +96,23 @@ LIBRARY_TOO_BIG = ("the library folder holds more than {limit:,} files and folde
                    "library is a folder of part files")
 LIBRARY_TOO_MANY_FILES = "the library folder holds more than {limit:,} part files"
 LINK_OUT_OF_LIBRARY = "a link out of the library folder is not followed"
-# schema.py (pydantic validators: the loader removes pydantic's "Value error, ")
+# records.py: a value of the wrong kind or form, in any file format declared as records
+NOT_TEXT = "not text"
+NOT_TRUE_OR_FALSE = "not true or false"
+NOT_WHOLE_NUMBER = "not a whole number"
+NOT_NUMBER = "not a number"
+NOT_DATE = "not a date (YYYY-MM-DD)"
+NOT_TABLE = "not a table"
+NOT_ARRAY = "not an array"
+NOT_TEXT_OR_TABLE = "neither text nor a table"
+WRONG_KIND = "not a kind of value this field takes"
+TEXT_WRONG_FORM = "text not of the allowed form"
+TEXT_TOO_SHORT = "text shorter than {n} character(s)"
+TEXT_TOO_LONG = "text longer than {n} characters"
+# ... and what only a program using the records wrongly meets
+RECORD_FROZEN = "a {record} cannot be changed in place: make a changed copy, copy({name}=...)"
+RECORD_FIELD_TYPE = "a record field cannot be of type {type}"
+# schema.py (its record checks)
 EDGE_NEEDS_RISE_OR_FALL = "an edge point needs rise or fall (or both)"
 FAST_CORNER_EMPTY = "a fast corner needs r_out or edges (or both)"
 FAST_CORNER_NEEDS_PUSH_PULL = ("a fast corner belongs to a push-pull output; this pin's drive "
@@ -492,6 +508,7 @@ IBIS_FIT_POOR = ("pin {pin}, {edge} ({corner}): the driver model misses the wave
 #: The modules whose raise sites, warnings and report sentences take their texts from here.
 MODULES = (
     "pinlib.core.tomlfile",
+    "pinlib.core.records",
     "pinlib.core.quantity",
     "pinlib.library.loader",
     "pinlib.library.schema",

@@ -156,7 +156,7 @@ def _coupling_located(err: PinlibError, c, design: Design) -> PinlibError:
     from pinlib.model.design import RawCoupling
 
     index = line_index(design.text) if design.text else {}
-    own = err.field in RawCoupling.model_fields
+    own = err.field in RawCoupling.fields()
     loc = c.loc + ((err.field,) if own else ())
     hint = err.hint if own else M.MET_EVALUATING_BUS.format(bus=c.id, field=err.field or "?")
     return type(err)(err.problem, file=str(design.path) if design.path else None,

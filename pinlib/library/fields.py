@@ -1,11 +1,11 @@
-"""What each field of the part format holds, read from the pydantic models.
+"""What each field of the part format holds, read from its records.
 
 The recorder needs to know which dotted paths take a value (``pins.sda.c_in``) and the
 JSON Schema export needs the unit of each of them.  Both are read here from the models
 in :mod:`pinlib.library.schema` rather than kept in a second list that could drift: a
-value field is one whose validator turns text into a
+value field is one whose converter turns text into a
 :class:`~pinlib.library.values.Sourced`, and its unit is found by offering the
-validator one example of each unit of :data:`pinlib.core.quantity.UNITS`.
+converter one example of each unit of :data:`pinlib.core.quantity.UNITS`.
 """
 
 from __future__ import annotations
@@ -16,11 +16,10 @@ import re
 import typing
 from dataclasses import dataclass
 
-from pydantic import BaseModel, BeforeValidator
-
 from pinlib.core import messages as M
 from pinlib.core.errors import LibraryError, PinlibError
 from pinlib.core.quantity import UNITS, Threshold
+from pinlib.core.records import Convert, Record
 from pinlib.library import schema
 from pinlib.library.values import Sourced
 
@@ -55,9 +54,9 @@ def _flat_args(annotation) -> list:
     return out + list(extra)
 
 
-def _validator(info) -> BeforeValidator | None:
+def _converter(info) -> Convert | None:
     for item in list(info.metadata) + _flat_args(info.annotation):
-        if isinstance(item, BeforeValidator):
+        if isinstance(item, Convert):
             return item
     return None
 
@@ -81,21 +80,21 @@ def _probe(func) -> ValueKind | None:
 
 
 def value_kind(info) -> ValueKind | None:
-    """The kind of value a pydantic field holds, or None when it holds no Sourced value."""
+    """The kind of value a record's field holds, or None when it holds no Sourced value."""
     if Sourced not in _flat_args(info.annotation):
         return None
-    bv = _validator(info)
+    bv = _converter(info)
     return _probe(bv.func) if bv is not None else None
 
 
-def _model_in(annotation) -> type[BaseModel] | None:
+def _model_in(annotation) -> type[Record] | None:
     for arg in _flat_args(annotation):
-        if isinstance(arg, type) and issubclass(arg, BaseModel):
+        if isinstance(arg, type) and issubclass(arg, Record):
             return arg
     return None
 
 
-def submodel(info) -> type[BaseModel] | None:
+def submodel(info) -> type[Record] | None:
     """The model of a nested table (``supply``, ``timing``), None for maps and lists."""
     origin = typing.get_origin(info.annotation)
     if origin in (dict, tuple, list):
@@ -103,25 +102,25 @@ def submodel(info) -> type[BaseModel] | None:
     return _model_in(info.annotation)
 
 
-def mapping_of(info) -> type[BaseModel] | None:
+def mapping_of(info) -> type[Record] | None:
     """``dict[str, Pin]`` -> Pin (tables of named items: ``pins``, ``sides``)."""
     if typing.get_origin(info.annotation) is dict:
         return _model_in(typing.get_args(info.annotation)[1])
     return None
 
 
-def sequence_of(info) -> type[BaseModel] | None:
+def sequence_of(info) -> type[Record] | None:
     """``tuple[Edge, ...]`` -> Edge (arrays of tables: ``edges``)."""
     if typing.get_origin(info.annotation) in (tuple, list):
         return _model_in(typing.get_args(info.annotation)[0])
     return None
 
 
-def models(root: type[BaseModel] = schema.Part) -> list[type[BaseModel]]:
+def models(root: type[Record] = schema.Part) -> list[type[Record]]:
     """Every model reachable from ``root``, root first."""
-    seen: list[type[BaseModel]] = [root]
+    seen: list[type[Record]] = [root]
     for model in seen:
-        for info in model.model_fields.values():
+        for info in model.fields().values():
             sub = submodel(info) or mapping_of(info) or sequence_of(info)
             if sub is not None and sub not in seen:
                 seen.append(sub)
@@ -142,13 +141,14 @@ def glossary() -> dict[str, str]:
     return out
 
 
-def model_at(root: type[BaseModel], loc) -> type[BaseModel] | None:
-    """The model whose field the last key of ``loc`` (a pydantic error location) names:
+def model_at(root: type[Record], loc) -> type[Record] | None:
+    """The model whose field the last key of ``loc`` (an error location of
+    :mod:`pinlib.core.records`) names:
     ``("bus", 0, "devices", 1, "prat")`` -> the device model.  None when ``loc`` leaves
     the models (a plain value, a key of a free table)."""
     model, keys, i = root, list(loc)[:-1], 0
     while i < len(keys):
-        info = model.model_fields.get(keys[i]) if isinstance(keys[i], str) else None
+        info = model.fields().get(keys[i]) if isinstance(keys[i], str) else None
         if info is None:
             return None
         inner = mapping_of(info) or sequence_of(info)
@@ -162,13 +162,13 @@ def model_at(root: type[BaseModel], loc) -> type[BaseModel] | None:
     return model
 
 
-def unknown_field_help(root: type[BaseModel], loc, format_name: str) -> tuple[str, str | None]:
+def unknown_field_help(root: type[Record], loc, format_name: str) -> tuple[str, str | None]:
     """(expected, hint) for an unknown key at ``loc``: the fields of that table in the
     named format, and the closest of them to the key."""
     model = model_at(root, loc)
     if model is None or not loc:
         return M.EXPECTED_FIELD_OF.format(format=format_name, fields="see its documentation"), None
-    names = list(model.model_fields)
+    names = list(model.fields())
     key = str(loc[-1])
     shown = ", ".join(names[:_FIELDS_SHOWN])
     if len(names) > _FIELDS_SHOWN:  # a message stays readable: the rest in the docs
@@ -200,12 +200,12 @@ def resolve_path(text: str) -> tuple[tuple[str, ...], ValueKind]:
         raise LibraryError(M.FIELD_PATH_NEEDED, field="field", value=text,
                            expected="PIN.FIELD, timing.FIELD or supply.min/max")
     parts = [p.strip() for p in text.strip().split(".")]
-    model: type[BaseModel] = schema.Part
+    model: type[Record] = schema.Part
     path: list[str] = []
     i = 0
     while i < len(parts):
         key = parts[i]
-        fields = model.model_fields
+        fields = model.fields()
         pins_here = "pins" in fields
         if key not in fields and pins_here:
             parts.insert(i, "pins")  # shorthand: a pin name

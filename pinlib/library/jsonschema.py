@@ -1,8 +1,8 @@
 """A JSON Schema of the part-class file, for editors that validate and complete TOML.
 
-pydantic's own export describes each value field by the Python object it becomes
-(:class:`~pinlib.library.values.Sourced`), not by what a file holds.  We start from it
-(for the structure, the enums and the id pattern) and rewrite every value field as
+The records' own export (:mod:`pinlib.core.recordschema`) gives the structure, the enums
+and the id pattern, but not what a file writes for a value field (it becomes a
+:class:`~pinlib.library.values.Sourced`).  We start from it and rewrite every value field as
 what the file may say: a string with its unit, matched by a pattern built from the
 spellings :mod:`pinlib.core.quantity` accepts, or a provenance table
 ``{ value, basis, source, typ }``.
@@ -18,6 +18,7 @@ import copy
 import re
 
 from pinlib.core.quantity import _LENGTH, _PREFIX, _UNIT_ALIAS, UNITS
+from pinlib.core.recordschema import record_json_schema
 from pinlib.library import schema
 from pinlib.library.fields import glossary, mapping_of, models, sequence_of, submodel, value_kind
 from pinlib.library.values import BASES
@@ -125,7 +126,7 @@ def _value_ref(kind, name: str, defs: dict) -> dict:
 
 
 def _without_null(prop: dict) -> dict:
-    """TOML has no null: drop pydantic's ``anyOf [..., null]`` and ``default: null``."""
+    """TOML has no null: drop the ``anyOf [..., null]`` of ``X | None`` and ``default: null``."""
     prop = dict(prop)
     if prop.get("default", 0) is None or isinstance(prop.get("default"), dict):
         del prop["default"]  # TOML has no null; a table's defaults are its fields' own
@@ -148,14 +149,14 @@ def part_json_schema() -> dict:
     dict
         A draft 2020-12 schema; ``json.dumps`` it to a file and point the editor at it.
     """
-    base = copy.deepcopy(schema.Part.model_json_schema())
+    base = copy.deepcopy(record_json_schema(schema.Part))
     defs = base.pop("$defs", {})
     for model in models(schema.Part):
         node = base if model is schema.Part else defs.get(model.__name__)
         if node is None:
             continue
         props = node.get("properties", {})
-        for name, info in model.model_fields.items():
+        for name, info in model.fields().items():
             if name not in props:
                 continue
             kind = value_kind(info)
@@ -172,7 +173,7 @@ def part_json_schema() -> dict:
         # tables (edges) replace whole, so their items keep their required keys.
         if model is schema.Part:
             node["required"] = ["format", "id"]
-        elif not any(sequence_of(i) is model for m in models() for i in m.model_fields.values()):
+        elif not any(sequence_of(i) is model for m in models() for i in m.fields().values()):
             node.pop("required", None)
     for name in [n for n in defs if n in ("Sourced", "Threshold")]:
         del defs[name]

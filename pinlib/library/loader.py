@@ -18,10 +18,9 @@ from collections.abc import Iterable, Iterator, Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from pydantic import BaseModel, ValidationError
-
 from pinlib.core import messages as M
 from pinlib.core.errors import LibraryError, PinlibError
+from pinlib.core.records import Record, RecordError
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_index, line_of, load
 from pinlib.library.fields import unknown_field_help
@@ -43,7 +42,7 @@ __all__ = [
     "load_library",
     "read_part_file",
     "validate_part",
-    "pydantic_errors",
+    "record_errors",
     "library_folders",
 ]
 
@@ -96,41 +95,31 @@ def read_part_file(path: Path, *, builtin: bool = False) -> PartFile:
     return pf
 
 
-def pydantic_errors(exc: ValidationError, *, file=None, locate=None, cls=LibraryError,
-                    origin_file=None, model: type[BaseModel] = Part,
-                    format_name: str = "part") -> list[PinlibError]:
-    """Turn a pydantic ValidationError into pinlib errors naming file, line and field.
+def record_errors(exc: RecordError, *, file=None, locate=None, cls=LibraryError,
+                  origin_file=None, model: type[Record] = Part,
+                  format_name: str = "part") -> list[PinlibError]:
+    """Turn a :class:`~pinlib.core.records.RecordError` into pinlib errors naming file,
+    line and field.
 
     ``model`` is the root model that was validated and ``format_name`` the name of its
     format: an unknown key is answered with the fields of its table and the closest one.
     """
     out: list[PinlibError] = []
-    for err in exc.errors(include_url=False):
-        loc = tuple(err.get("loc", ()))
+    for issue in exc.issues:
+        loc = issue.loc
         dotted = dotted_path(loc)
         where = origin_file(loc) if origin_file else file
         line = locate(where, loc) if locate else None
-        inner = (err.get("ctx") or {}).get("error")
-        if isinstance(inner, PinlibError):
+        inner = issue.error
+        if inner is not None:
             out.append(cls(inner.problem, file=where, line=line, field=dotted or inner.field,
                            value=inner.value, expected=inner.expected, hint=inner.hint))
             continue
-        kind = err.get("type", "")
-        hint = None
-        if kind == "extra_forbidden":
-            problem = M.UNKNOWN_FIELD
+        hint, expected = None, issue.expected
+        if issue.kind == "unknown":
             expected, hint = unknown_field_help(model, loc, format_name)
-        elif kind == "missing":
-            problem, expected = M.MISSING_FIELD, None
-        elif kind == "literal_error":
-            problem = M.NOT_ALLOWED_VALUE
-            expected = err.get("ctx", {}).get("expected")
-        else:
-            problem, expected = err.get("msg", "invalid").removeprefix("Value error, "), None
-        value = err.get("input") if kind not in ("missing",) else None
-        if isinstance(value, dict):
-            value = None
-        out.append(cls(problem, file=where, line=line, field=dotted, value=value,
+        value = issue.value if not isinstance(issue.value, dict) else None
+        out.append(cls(issue.problem, file=where, line=line, field=dotted, value=value,
                        expected=expected, hint=hint))
     return out
 
@@ -185,8 +174,8 @@ def validate_part(merged: dict, origin: dict, files: dict[str, PartFile]) -> Par
     """Validate a merged raw table; errors point at the file that set the bad value."""
     own = merged.get("id")
     try:
-        part = Part.model_validate(merged)
-    except ValidationError as exc:
+        part = Part.validate(merged)
+    except RecordError as exc:
         def origin_file(loc):
             pid = _origin_of(origin, loc) or own
             return str(files[pid].path) if pid in files else None
@@ -197,7 +186,7 @@ def validate_part(merged: dict, origin: dict, files: dict[str, PartFile]) -> Par
                     return pf.line(loc)
             return None
 
-        raise _Many(pydantic_errors(exc, origin_file=origin_file, locate=locate)) from None
+        raise _Many(record_errors(exc, origin_file=origin_file, locate=locate)) from None
     stamps = {pid: (str(pf.path), _file_provenance(pf.raw)) for pid, pf in files.items()}
     return _with_origins(part, origin, own, stamps)
 
@@ -229,14 +218,13 @@ def _with_origins(part: Part, origin: dict, own: str, stamps: dict | None = None
         if isinstance(obj, tuple):
             out = tuple(walk(v, path + (i,)) for i, v in enumerate(obj))
             return obj if all(a is b for a, b in zip(out, obj, strict=True)) else out
-        if isinstance(obj, BaseModel):
+        if isinstance(obj, Record):
             changes = {}
-            for name in type(obj).model_fields:
-                value = getattr(obj, name)
+            for name, value in obj.__dict__.items():
                 new = walk(value, path + (name,))
                 if new is not value:
                     changes[name] = new
-            return obj.model_copy(update=changes) if changes else obj
+            return obj.copy(**changes) if changes else obj
         return obj
 
     return walk(part, ())

@@ -115,7 +115,7 @@ def part_warnings(part: Part, lib=None, *, own_only: bool = False) -> list[Libra
     def pins(prefix: tuple, table: dict, supply) -> None:
         ends = () if supply is None else (float(supply.min.value), float(supply.max.value))
         for name, pin in table.items():
-            for field in type(pin).model_fields:
+            for field in type(pin).fields():
                 value = getattr(pin, field)
                 if isinstance(value, Sourced):
                     _add(prefix + (name, field), value, field, pin.drive, ends)
@@ -145,7 +145,7 @@ def part_warnings(part: Part, lib=None, *, own_only: bool = False) -> list[Libra
     pins(("pins",), part.pins, part.supply)
     for side_name, side in part.sides.items():
         pins(("sides", side_name, "pins"), side.pins, part.supply_for(side_name))
-    for field in type(part.timing).model_fields:
+    for field in type(part.timing).fields():
         value = getattr(part.timing, field)
         if isinstance(value, Sourced):
             _add(("timing", field), value, field, "timing")

@@ -1,10 +1,10 @@
-"""The part-class format, ``format = "pinlib.part/1"``, as pydantic models.
+"""The part-class format, ``format = "pinlib.part/1"``, as records (:mod:`pinlib.core.records`).
 
 Every dimensional field is a :class:`~pinlib.library.values.Sourced` value: a string
 with its unit or a provenance table.  Each stored value is the guaranteed limit in the
 direction that hurts the design (max capacitance and leakage, max VIL, min VIH, max
 VOL at the stated current, max output delay, min setup and hold); ``typ`` rides beside
-it for information.  Misspelt keys are errors (``extra="forbid"``).
+it for information.  Misspelt keys are errors (a record refuses a key it does not declare).
 
 The glossary of field names (used throughout pinlib):
 
@@ -37,11 +37,10 @@ from __future__ import annotations
 import datetime as _dt
 from typing import Annotated, Literal
 
-from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, field_validator, model_validator
-
 from pinlib.core import messages as M
 from pinlib.core.protocols import PIN_FUNCTIONS
 from pinlib.core.quantity import format_si
+from pinlib.core.records import Convert, Record, Rule, after, check, field
 from pinlib.library.values import Sourced, sourced_parser, threshold_parser
 
 __all__ = [
@@ -73,7 +72,7 @@ DRIVES = ("open-drain", "push-pull", "input")
 
 
 def _q(unit, lo=None, hi=None, signed=False):
-    return Annotated[Sourced, BeforeValidator(sourced_parser(unit, lo, hi, signed=signed))]
+    return Annotated[Sourced, Convert(sourced_parser(unit, lo, hi, signed=signed))]
 
 
 # Plausible ranges: wide enough for any real pin, narrow enough to catch a lost prefix.
@@ -85,14 +84,10 @@ Time = _q("s", 0.0, 10.0)
 Frequency = _q("Hz", 0.0, 100e9)
 CapPerLength = _q("F/m", 0.0, 1e-6)
 DelayPerLength = _q("s/m", 1e-9, 1e-6)
-Level = Annotated[Sourced, BeforeValidator(threshold_parser())]
+Level = Annotated[Sourced, Convert(threshold_parser())]
 
 
-class _Model(BaseModel):
-    model_config = ConfigDict(extra="forbid", frozen=True, arbitrary_types_allowed=True)
-
-
-class Edge(_Model):
+class Edge(Record):
     """One datasheet edge-time point: rise and fall into a stated load."""
 
     load: Capacitance
@@ -101,16 +96,16 @@ class Edge(_Model):
     levels: Literal["10-90", "20-80"] = "10-90"
     vdd: Voltage | None = None  # the supply the point was stated at, when it matters
 
-    @model_validator(mode="after")
+    @after
     def _one_edge(self):
-        # An after-validator, so it also runs when neither key is given (defaults are
-        # not validated field by field).
+        # A check of the whole record, so it also runs when neither key is given
+        # (defaults are not checked field by field).
         if self.rise is None and self.fall is None:
             raise ValueError(M.EDGE_NEEDS_RISE_OR_FALL)
         return self
 
 
-class FastCorner(_Model):
+class FastCorner(Record):
     """A push-pull output's fast corner (strongest drive, quickest edges).
 
     The pin's own ``r_out`` and ``edges`` are the slow corner, which sets edge times and
@@ -121,14 +116,14 @@ class FastCorner(_Model):
     edges: tuple[Edge, ...] = ()
     description: str | None = None
 
-    @model_validator(mode="after")
+    @after
     def _r_out_or_edges(self):
         if self.r_out is None and not self.edges:
             raise ValueError(M.FAST_CORNER_EMPTY)
         return self
 
 
-class Pin(_Model):
+class Pin(Record):
     """One pin of a part class."""
 
     function: Literal[FUNCTIONS]  # type: ignore[valid-type]
@@ -153,14 +148,14 @@ class Pin(_Model):
     t_of_max: Time | None = None
     description: str | None = None
 
-    @model_validator(mode="after")
+    @after
     def _fast_on_push_pull(self):
         if self.fast is not None and self.drive != "push-pull":
             raise ValueError(M.FAST_CORNER_NEEDS_PUSH_PULL.format(drive=self.drive))
         return self
 
 
-class Timing(_Model):
+class Timing(Record):
     """Protocol timing of a part (limits in the direction that hurts)."""
 
     f_max: Frequency | None = None
@@ -182,36 +177,34 @@ class Timing(_Model):
     t_pd: Time | None = None
 
 
-class Supply(_Model):
+class Supply(Record):
     min: Voltage
     max: Voltage
     typ: Voltage | None = None
 
-    @field_validator("min")
-    @classmethod
-    def _positive(cls, v):
+    @check("min")
+    def _positive(cls, v, earlier):
         # a part runs from a positive supply; 0 V once divided by zero in the engines
         if not v.value > 0.0:
             raise ValueError(M.SUPPLY_MIN_NOT_POSITIVE)
         return v
 
-    @field_validator("max")
-    @classmethod
-    def _ordered(cls, v, info):
-        lo = info.data.get("min")
+    @check("max")
+    def _ordered(cls, v, earlier):
+        lo = earlier.get("min")
         if lo is not None and v.value < lo.value:
             raise ValueError(M.SUPPLY_MAX_BELOW_MIN.format(max=v.text, min=lo.text))
         return v
 
 
-class Provenance(_Model):
+class Provenance(Record):
     basis: Literal["generic", "datasheet", "measured", "estimate", "ibis"] = "generic"
     source: str = ""
     recorded: _dt.date | None = None
     by: str | None = None
 
 
-class LinePerLength(_Model):
+class LinePerLength(Record):
     """A cable or interconnect class, per length: capacitance (per conductor to its
     return), delay and impedance.
 
@@ -225,7 +218,7 @@ class LinePerLength(_Model):
     delay: DelayPerLength | None = None
     impedance: Resistance | None = None
 
-    @model_validator(mode="after")
+    @after
     def _two_of_three(self):
         c, d, z = self.capacitance, self.delay, self.impedance
         given = [x for x in (c, d, z) if x is not None]
@@ -249,7 +242,7 @@ class LinePerLength(_Model):
         return self
 
 
-class Bridge(_Model):
+class Bridge(Record):
     """How a bridging part joins its two sides."""
 
     kind: Literal["repeater", "mosfet", "buffer", "isolator"]
@@ -258,19 +251,19 @@ class Bridge(_Model):
     low_offset_side: Literal["a", "b"] | None = None
 
 
-class Side(_Model):
+class Side(Record):
     """One side of a bridging part: its supply, pins and any static low-level offset."""
 
     supply: Supply | None = None
-    pins: dict[str, Pin] = Field(default_factory=dict)
+    pins: dict[str, Pin] = field(default_factory=dict)
     low_offset: Voltage | None = None  # the low level this side drives (static offset), max
 
 
-class Part(_Model):
+class Part(Record):
     """A part class: the whole file, after ``extends`` has been merged in."""
 
     format: Literal["pinlib.part/1"]
-    id: Annotated[str, Field(pattern=r"^[a-z0-9][a-z0-9-]*$", max_length=64)]
+    id: Annotated[str, Rule(pattern=r"^[a-z0-9][a-z0-9-]*$", max_length=64)]
     title: str
     category: Literal[CATEGORIES]  # type: ignore[valid-type]
     extends: str | None = None
@@ -278,15 +271,14 @@ class Part(_Model):
     supply: Supply | None = None
     provenance: Provenance = Provenance()
     description: str | None = None
-    pins: dict[str, Pin] = Field(default_factory=dict)
+    pins: dict[str, Pin] = field(default_factory=dict)
     timing: Timing = Timing()
-    sides: dict[Literal["a", "b"], Side] = Field(default_factory=dict)
+    sides: dict[Literal["a", "b"], Side] = field(default_factory=dict)
     bridge: Bridge | None = None
     line: LinePerLength | None = None
 
-    @field_validator("sides")
-    @classmethod
-    def _both_sides(cls, v):
+    @check("sides")
+    def _both_sides(cls, v, earlier):
         if v and set(v) != {"a", "b"}:
             raise ValueError(M.BRIDGE_BOTH_SIDES)
         return v

@@ -153,7 +153,8 @@ def _split_table(raw, field):
 
 def sourced_parser(unit: str, lo: float | None = None, hi: float | None = None,
                    *, signed: bool = False):
-    """A pydantic before-validator: plain value or provenance table -> :class:`Sourced`.
+    """A record converter (:class:`pinlib.core.records.Convert`): plain value or provenance
+    table -> :class:`Sourced`.
 
     ``lo``/``hi`` are sane bounds in SI (a bare ``"4k7"`` for a capacitance must not
     pass as 4.7 kF); values outside them are refused with the range in the message.
@@ -168,10 +169,10 @@ def sourced_parser(unit: str, lo: float | None = None, hi: float | None = None,
                             expected=f"between {format_si(lo, unit)} and {format_si(hi, unit)}")
         return x
 
-    def validate(raw, info=None):
+    def validate(raw, name=None):
         if isinstance(raw, Sourced):
             return raw
-        field = _field_name(info)
+        field = _field_name(name)
         text, basis, source, typ = _split_table(raw, field)
         value = check(parse(text, unit, field=field), field)
         typ_v = None if typ is None else parse(typ, unit, field=f"{field}.typ" if field else None)
@@ -181,12 +182,12 @@ def sourced_parser(unit: str, lo: float | None = None, hi: float | None = None,
 
 
 def threshold_parser(lo: float = -50.0, hi: float = 50.0):
-    """A pydantic before-validator for levels: ``"0.7 VDD"``, ``"VDD - 0.4 V"``, ``"2 V"``."""
+    """A record converter for levels: ``"0.7 VDD"``, ``"VDD - 0.4 V"``, ``"2 V"``."""
 
-    def validate(raw, info=None):
+    def validate(raw, name=None):
         if isinstance(raw, Sourced):
             return raw
-        field = _field_name(info)
+        field = _field_name(name)
         text, basis, source, typ = _split_table(raw, field)
         th = parse_threshold(text, field=field)
         if not (-2.0 <= th.scale <= 2.0 and lo <= th.offset <= hi):
@@ -198,5 +199,5 @@ def threshold_parser(lo: float = -50.0, hi: float = 50.0):
     return validate
 
 
-def _field_name(info) -> str | None:
-    return getattr(info, "field_name", None) if info is not None else None
+def _field_name(name) -> str | None:
+    return name if isinstance(name, str) else None

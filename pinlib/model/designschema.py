@@ -1,12 +1,13 @@
 """A JSON Schema of the design file, for editors that validate and complete TOML.
 
-It is generated from the design file's pydantic models (:class:`pinlib.model.design.RawDesign`):
-each value with a unit is described as the string a file writes (its pattern is the one
-the part-file schema uses, :func:`pinlib.library.jsonschema.quantity_pattern`), and
-TOML's missing null is taken out of pydantic's ``anyOf [..., null]``.  The schema ships
-inside the package as ``pinlib/model/design.schema.json`` (package data), so ``pinlib
-schema design`` prints it without building it; ``tests/test_designschema.py`` holds the
-shipped file equal to :func:`design_json_schema`.  Rebuild it with
+It is generated from the design file's records (:class:`pinlib.model.design.RawDesign`, by
+:mod:`pinlib.core.recordschema`): each value with a unit is described as the string a
+file writes (its pattern is the one the part-file schema uses,
+:func:`pinlib.library.jsonschema.quantity_pattern`), and TOML's missing null is taken out
+of the ``anyOf [..., null]`` of ``X | None``.  The schema ships inside the package as
+``pinlib/model/design.schema.json`` (package data), so ``pinlib schema design`` prints it
+without building it; ``tests/test_cli_many.py`` holds the shipped file equal to
+:func:`design_json_schema`.  Rebuild it with
 ``python -m pinlib.model.designschema``.
 """
 
@@ -15,6 +16,7 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
+from pinlib.core.recordschema import record_json_schema
 from pinlib.library.jsonschema import SCHEMA_DIALECT
 from pinlib.model.design import FORMAT, RawDesign
 
@@ -26,7 +28,7 @@ SHIPPED = Path(__file__).with_name("design.schema.json")
 
 def _tidy(node):
     """Drop what TOML cannot write (null, a number where a unit string is due) and the
-    titles pydantic makes from field names, all through the tree."""
+    titles made from field names, all through the tree."""
     if isinstance(node, list):
         return [_tidy(n) for n in node]
     if not isinstance(node, dict):
@@ -54,7 +56,7 @@ def _tidy(node):
 
 def design_json_schema() -> dict:
     """The JSON Schema of a design file (``format = "pinlib.design/1"``), draft 2020-12."""
-    base = _tidy(RawDesign.model_json_schema())
+    base = _tidy(record_json_schema(RawDesign))
     return {
         "$schema": SCHEMA_DIALECT,
         **base,

@@ -64,7 +64,7 @@ devices = [
 
 def generated_part(i: int) -> Part:
     c = 2 + (i * 7919) % 2300 / 100  # 2 to 25 pF, scattered
-    return Part.model_validate({
+    return Part.validate({
         "format": "pinlib.part/1", "id": f"gen-cand-{i:05d}", "title": f"Generated target {i}",
         "category": "memory", "supply": {"min": "1.7 V", "max": "5.5 V"},
         "pins": {

@@ -1,6 +1,6 @@
 """``pinlib parts``: list, show, create, record into and check the parts library.
 
-The library modules (and pydantic with them) are imported inside each action, so that
+The library modules are imported inside each action, so that
 ``pinlib --help`` and the other commands do not pay for them.
 """
 
@@ -303,14 +303,13 @@ def _run_list(args) -> int:
 
 def _walk(obj, path=()):
     """Yield (path, Sourced) for every value of a part, and (path, x) for plain fields."""
-    from pydantic import BaseModel
-
+    from pinlib.core.records import Record
     from pinlib.library.values import Sourced
 
     if isinstance(obj, Sourced):
         yield path, obj
-    elif isinstance(obj, BaseModel):
-        for name in type(obj).model_fields:
+    elif isinstance(obj, Record):
+        for name in type(obj).fields():
             value = getattr(obj, name)
             if value is None or (isinstance(value, (dict, tuple)) and not value):
                 continue

@@ -1,7 +1,7 @@
 """Design files, ``format = "pinlib.design/1"``: loading, checking references, objects.
 
 A design is the buses of one board built from library parts.  Loading happens in two
-passes.  The first checks the file's structure and units with pydantic models (a
+passes.  The first checks the file's structure and units with records (a
 misspelt key or a capacitance written in henries is an error that names the file,
 line and field).  The second resolves references — part ids against the merged
 library, geometry names against ``[board.geometry]`` — and checks what a bus needs:
@@ -13,7 +13,7 @@ The result is a tree of plain dataclasses (:class:`Design` > :class:`Bus` >
 
 The package, each module importing only those above it:
 
-- :mod:`.raw`: the file's schema (pydantic models with units), pass 1;
+- :mod:`.raw`: the file's schema (records with units, :mod:`pinlib.core.records`), pass 1;
 - :mod:`.objects`: the resolved objects the engines read (:class:`Bus`, :class:`Line`...);
 - :mod:`.resolve`: parts, geometries, sections and cables resolved from the raw tables;
 - :mod:`.buses`: an open-drain or push-pull bus built and checked;

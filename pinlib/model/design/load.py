@@ -6,11 +6,10 @@ from __future__ import annotations
 import os
 from pathlib import Path
 
-from pydantic import ValidationError
-
 from pinlib.core import messages as M
 from pinlib.core import protocols
 from pinlib.core.errors import DesignError, LibraryError
+from pinlib.core.records import RecordError
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_index, line_of, load
 from pinlib.core.worklimits import (
@@ -18,7 +17,7 @@ from pinlib.core.worklimits import (
     MAX_DEVICES_PUSH_PULL,
 )
 from pinlib.library.folders import require_folders
-from pinlib.library.loader import Library, load_library, pydantic_errors
+from pinlib.library.loader import Library, load_library, record_errors
 from pinlib.model.design.build import Design, _build
 from pinlib.model.design.raw import FORMAT, RawDesign
 
@@ -58,9 +57,9 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
                           expected=f'format = "{FORMAT}"', **at(("format",)))
     _refuse_too_many_devices(data, at)  # before validating what would not be checked
     try:
-        raw = RawDesign.model_validate(data)
-    except ValidationError as exc:
-        errors = pydantic_errors(exc, file=fname, locate=lambda _f, loc: line_of(index, loc),
+        raw = RawDesign.validate(data)
+    except RecordError as exc:
+        errors = record_errors(exc, file=fname, locate=lambda _f, loc: line_of(index, loc),
                                  cls=DesignError, model=RawDesign, format_name="design")
         # a misspelt key explains the required field it leaves missing: name it first
         errors.sort(key=lambda e: e.problem != M.UNKNOWN_FIELD)

@@ -1,16 +1,15 @@
-"""The schema of a design file: pydantic models whose fields carry their units and ranges (the
-first pass of loading)."""
+"""The schema of a design file: records (:mod:`pinlib.core.records`) whose fields carry their
+units and ranges (the first pass of loading)."""
 
 from __future__ import annotations
 
 from typing import Annotated, Literal
 
-from pydantic import BaseModel, BeforeValidator, ConfigDict, Field
-
 from pinlib.core import messages as M
 from pinlib.core import protocols
 from pinlib.core.errors import DesignError
 from pinlib.core.quantity import format_si, parse
+from pinlib.core.records import Convert, Record, Rule, WrittenAs, field
 
 FORMAT = "pinlib.design/1"
 PROTOCOLS = protocols.NAMES
@@ -21,8 +20,8 @@ SIGNAL_FUNCTION = protocols.SIGNAL_FUNCTION
 
 
 def _unit_validator(unit, lo=None, hi=None):
-    def validate(raw, info=None):
-        x = parse(raw, unit, field=getattr(info, "field_name", None))
+    def validate(raw, name=None):
+        x = parse(raw, unit, field=name)
         if x < 0 and unit not in ("V",):
             raise DesignError(M.NEGATIVE_VALUE, value=raw, expected="zero or more")
         if (lo is not None and x < lo) or (hi is not None and x > hi):
@@ -34,15 +33,18 @@ def _unit_validator(unit, lo=None, hi=None):
     return validate
 
 
-class _AsWritten:
+class _AsWritten(WrittenAs):
     """What a file writes for a value with a unit (a string; or one of ``words``), for the
-    JSON Schema of design files (:mod:`pinlib.model.designschema`): pydantic would
-    describe the float it becomes.  The pattern is built only when a schema is asked for."""
+    JSON Schema of design files (:mod:`pinlib.model.designschema`), not the float it
+    becomes.  The pattern is built only when a schema is asked for."""
+
+    __slots__ = ("unit", "words")
 
     def __init__(self, unit: str, words: tuple = ()):
         self.unit, self.words = unit, words
+        self.func = self._schema
 
-    def __get_pydantic_json_schema__(self, core_schema, handler):
+    def _schema(self):
         from pinlib.core.quantity import UNITS
         from pinlib.library.jsonschema import quantity_pattern
 
@@ -57,7 +59,7 @@ class _AsWritten:
 
 
 def _unit(unit, lo=None, hi=None):
-    return Annotated[float, BeforeValidator(_unit_validator(unit, lo, hi)), _AsWritten(unit)]
+    return Annotated[float, Convert(_unit_validator(unit, lo, hi)), _AsWritten(unit)]
 
 
 def _auto_or(unit, lo=None, hi=None, words=("auto",)):
@@ -65,12 +67,12 @@ def _auto_or(unit, lo=None, hi=None, words=("auto",)):
     # stay a string.
     quantity = _unit_validator(unit, lo, hi)
 
-    def validate(raw, info=None):
+    def validate(raw, name=None):
         if isinstance(raw, str) and raw.strip().lower() in words:
             return raw.strip().lower()
-        return quantity(raw, info)
+        return quantity(raw, name)
 
-    return Annotated[str | float, BeforeValidator(validate), _AsWritten(unit, words)]
+    return Annotated[str | float, Convert(validate), _AsWritten(unit, words)]
 
 
 Length = _unit("m", 0.0, 1000.0)
@@ -94,21 +96,17 @@ PullupSetting = _auto_or("Ω", 1e-3, 1e9, words=("auto",))
 SeriesSetting = _auto_or("Ω", 0.0, 1e6, words=("auto", "none"))
 
 
-class _Raw(BaseModel):
-    model_config = ConfigDict(extra="forbid", frozen=True)
-
-
-class RawGeometry(_Raw):
+class RawGeometry(Record):
     kind: Literal["microstrip", "stripline"]
     width: Dimension
     height: Dimension | None = None   # microstrip: to the plane; stripline: to each plane
     spacing: Dimension | None = None  # stripline: plane to plane
     thickness: Thickness = 35e-6      # 1 oz copper, common practice
-    er: Annotated[float, Field(ge=1.0, le=100.0)]
+    er: Annotated[float, Rule(ge=1.0, le=100.0)]
     method: str | None = None
 
 
-class RawSection(_Raw):
+class RawSection(Record):
     length: Length
     geometry: str | None = None
     capacitance: CapPerLength | None = None
@@ -116,14 +114,14 @@ class RawSection(_Raw):
     part: str | None = None           # a cable class from the library
 
 
-PointName = Annotated[str, Field(min_length=1, max_length=40)]
+PointName = Annotated[str, Rule(min_length=1, max_length=40)]
 
 
 class RawRouteStretch(RawSection):
     """One stretch of a routed line between two points: a device's reference designator on
     the line, or a junction named freely (``"T1"``)."""
 
-    from_: PointName = Field(alias="from")
+    from_: PointName = field(alias="from")
     to: PointName
 
 
@@ -135,13 +133,13 @@ class RawTrace(RawSection):
     extra_capacitance: Capacitance = 0.0
 
 
-class RawCable(_Raw):
+class RawCable(Record):
     part: str
     length: Length
 
 
-class RawDevice(_Raw):
-    ref: Annotated[str, Field(min_length=1, max_length=40)]
+class RawDevice(Record):
+    ref: Annotated[str, Rule(min_length=1, max_length=40)]
     part: str
     role: Literal["controller", "peripheral", "target"] = "peripheral"
     supply: Voltage | None = None
@@ -153,7 +151,7 @@ class RawDevice(_Raw):
     capacitance_tolerance: Ratio | None = None
 
 
-class RawSegment(_Raw):
+class RawSegment(Record):
     id: str | None = None
     supply: Voltage | None = None
     supply_tolerance: Tolerance | None = None
@@ -174,20 +172,20 @@ class RawBus(RawSegment):
     title: str | None = None
     mode: str | None = None
     clock: Frequency | None = None
-    spi_mode: Annotated[int, Field(ge=0, le=3)] = 0
+    spi_mode: Annotated[int, Rule(ge=0, le=3)] = 0
     segment: tuple[RawSegment, ...] = ()
-    lines: dict[str, RawTrace] = Field(default_factory=dict)
+    lines: dict[str, RawTrace] = field(default_factory=dict)
 
 
-class RawBoard(_Raw):
-    geometry: dict[str, RawGeometry] = Field(default_factory=dict)
+class RawBoard(Record):
+    geometry: dict[str, RawGeometry] = field(default_factory=dict)
 
 
 # ---------------------------------------------------------------- coupling (issue 17)
 # Resolved in :mod:`pinlib.model.design.coupling`.
 
 
-class RawEdge(_Raw):
+class RawEdge(Record):
     """A described aggressor: its swing, 10-90 % edge time and source resistance."""
 
     swing: _unit("V", 0.0, 100.0)
@@ -196,15 +194,15 @@ class RawEdge(_Raw):
     load_capacitance: Capacitance = 0.0
 
 
-class RawCoupling(_Raw):
+class RawCoupling(Record):
     """Two traces side by side: the victim (an open-drain line), the aggressor (a line of
     the design or a described edge), their gap and the length they run together."""
 
-    victim: Annotated[str, Field(description="the open-drain line, 'BUS.SIGNAL', e.g. "
-                                             "'i2c0.scl'")]
-    segment: Annotated[str | None, Field(description="the victim bus's segment the run is "
-                                                     "in (default: its first)")] = None
-    aggressor: Annotated[str | RawEdge, Field(
+    victim: Annotated[str, Rule(description="the open-drain line, 'BUS.SIGNAL', e.g. "
+                                            "'i2c0.scl'")]
+    segment: Annotated[str | None, Rule(description="the victim bus's segment the run is "
+                                                    "in (default: its first)")] = None
+    aggressor: Annotated[str | RawEdge, Rule(
         description="a routed push-pull line, 'BUS.SIGNAL' (e.g. 'spi0.sclk'), or a "
                     "described edge {swing, edge_time, source_resistance}")]
     spacing: Dimension
@@ -214,7 +212,7 @@ class RawCoupling(_Raw):
     length_tolerance: Tolerance | None = None
 
 
-class RawDesign(_Raw):
+class RawDesign(Record):
     format: Literal["pinlib.design/1"]
     title: str
     description: str | None = None

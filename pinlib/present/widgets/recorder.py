@@ -163,15 +163,15 @@ class PartRecorder(_Panel):
         from pinlib.library.schema import Pin, Supply, Timing
 
         part = self.library.parts[part_id]
-        pin_fields = [n for n, f in Pin.model_fields.items() if value_kind(f)]
+        pin_fields = [n for n, f in Pin.fields().items() if value_kind(f)]
         out = []
         for name in part.pins:
             out += [f"{name}.{f}" for f in pin_fields]
         for side, s in part.sides.items():
             for name in s.pins:
                 out += [f"sides.{side}.{name}.{f}" for f in pin_fields]
-        out += [f"timing.{n}" for n, f in Timing.model_fields.items() if value_kind(f)]
-        out += [f"supply.{n}" for n, f in Supply.model_fields.items() if value_kind(f)]
+        out += [f"timing.{n}" for n, f in Timing.fields().items() if value_kind(f)]
+        out += [f"supply.{n}" for n, f in Supply.fields().items() if value_kind(f)]
         return out
 
     def _show(self, errors: dict[str, PinlibError]) -> None:

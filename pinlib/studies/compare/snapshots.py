@@ -10,12 +10,11 @@ import os
 from pathlib import Path
 from typing import Any
 
-from pydantic import BaseModel
-
 from pinlib import __version__
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.quantity import Threshold
+from pinlib.core.records import Record
 from pinlib.core.tomlfile import atomic_write, read_regular
 from pinlib.library.loader import BUILTIN_DIR
 from pinlib.library.schema import Part
@@ -118,8 +117,8 @@ def part_values(part: Part, rails: dict | None = None, library=None) -> dict[str
             return
         if isinstance(obj, Sourced):
             out[key] = _sourced_entry(obj, vdd, library)
-        elif isinstance(obj, BaseModel):
-            for name in type(obj).model_fields:
+        elif isinstance(obj, Record):
+            for name in type(obj).fields():
                 if name == "description":
                     continue
                 walk(getattr(obj, name), f"{key}.{name}" if key else name, vdd)
