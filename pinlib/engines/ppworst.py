@@ -25,7 +25,8 @@ from __future__ import annotations
 import itertools
 import math
 from collections.abc import Callable
-from dataclasses import dataclass, replace
+from dataclasses import replace
+from typing import NamedTuple
 
 import numpy as np
 
@@ -117,8 +118,7 @@ def method_text(k: int, limit: int = EXHAUSTIVE_LIMIT) -> str:
             "at the end that lowered its margin")
 
 
-@dataclass
-class BoardRows:
+class BoardRows(NamedTuple):
     """The nominal board's checks at many boards (a corner evaluation over arrays,
     :mod:`pinlib.engines.ppcorners`, that equals the engine board by board).
 
