@@ -160,7 +160,7 @@ class _Corners:
         count: dict = {}   # how many variants give each flight (all, or the bus is not served)
         held: dict = {}    # check index -> its check in each variant
         for v, bus_v in enumerate(buses):
-            inputs, controller, peripherals, _, _ = line_setup(bus_v, self.design)
+            inputs, controller, peripherals, _, _ = line_setup(bus_v, self.design, sig)
             la = inputs[sig].analyse()
             res = BusResult(id=self.bus.id, lines=[LineResult(signal=sig,
                                                               checks=la.result.checks)])

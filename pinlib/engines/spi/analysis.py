@@ -189,10 +189,12 @@ def spi_line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
     return list(line_setup(bus, design)[0].values())
 
 
-def line_setup(bus: Bus, design: Design) -> tuple[dict, Device, list, list, list]:
+def line_setup(bus: Bus, design: Design,
+               only: str | None = None) -> tuple[dict, Device, list, list, list]:
     """What :func:`spi_analysis` starts from: the :class:`LineInputs` of each line it
-    analyses (by signal, in its order), the controller, the peripherals and the bridging
-    parts (devices of ``bus``), and the notes of what it skips. [1]"""
+    analyses (by signal, in its order; of the line ``only`` alone when given), the
+    controller, the peripherals and the bridging parts (devices of ``bus``), and the
+    notes of what it skips. [1]"""
     controllers = bus.controllers
     controller = controllers[0]
     notes = []
@@ -203,7 +205,7 @@ def line_setup(bus: Bus, design: Design) -> tuple[dict, Device, list, list, list
     warn = design.warn_margin
     out = {}
     for sig in _SPI_ORDER:
-        if sig not in bus.lines:
+        if sig not in bus.lines or only not in (None, sig):
             continue
         fn = SIGNAL_FUNCTION[sig]
         line = bus.lines[sig]
