@@ -164,6 +164,7 @@ NOT_ON_THE_CHECK_PATH = (
     "pinlib.present.plotdata", "pinlib.present.widgets", "pinlib.studies.whatif",
     "pinlib.studies.compare", "pinlib.studies.candidates", "pinlib.library.ibis",
     "pinlib.library.record", "pinlib.library.jsonschema", "pinlib.model.designschema",
+    "pinlib.studies.many",
     # the formats are pinlib's own records: no validation library, no package metadata
     # scan, and their JSON Schema is built only when asked for
     "pydantic", "pydantic_core", "importlib.metadata", "email", "pinlib.core.recordschema",

@@ -440,3 +440,34 @@ def test_series_termination_reference_live(r_series, t_edge, over):
     # the live run still reproduces the recorded figures
     assert ref["tb"] - ref["ta"] == pytest.approx(t_edge, abs=0.006e-9)
     assert max(ref["vmax"] - 1.0, 0.0) == pytest.approx(over, abs=0.005)
+
+
+def test_one_record_paths_equal_the_batch_to_the_last_bit():
+    # derived from the batch path itself: threshold_delay, edge_time and recrossings
+    # of one record take their own path
+    # (no gathers over a batch axis); each number must be the batch path's, bit for bit
+    from pinlib.physics.waveform import metrics
+
+    rng = np.random.default_rng(7)
+    t = np.arange(1500) * 1e-12
+    for trial in range(400):
+        u = 3.3 * (1 - np.exp(-t / rng.uniform(1e-10, 1e-9))
+                   * np.cos(t / rng.uniform(0.5e-10, 5e-10)))
+        if trial % 5 == 0:
+            u = u[::-1].copy()          # a falling record
+        if trial % 7 == 0:
+            u = np.round(u, 1)          # flat runs, samples exactly at a threshold
+        if trial % 11 == 0:
+            u[rng.integers(0, t.size, 3)] = np.nan
+        v_il, v_ih = np.sort(rng.uniform(-0.5, 3.8, 2))
+        for edge in ("rise", "fall"):
+            one = metrics.recrossings(t, u, v_il, v_ih, edge=edge)
+            many = metrics.recrossings(t, u[None, :], v_il, v_ih, edge=edge)
+            assert (one.entry, one.opposite) == (many.entry[0], many.opposite[0])
+            np.testing.assert_array_equal(one.t_settled, many.t_settled[0])
+            for level in (v_il, v_ih):
+                np.testing.assert_array_equal(
+                    metrics.threshold_delay(t, u, level, edge=edge),
+                    metrics.threshold_delay(t, u[None, :], level, edge=edge)[0])
+        np.testing.assert_array_equal(metrics.edge_time(t, u, 3.3),
+                                      metrics.edge_time(t, u[None, :], 3.3)[0])

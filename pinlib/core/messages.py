@@ -555,6 +555,7 @@ MODULES = (
     "pinlib.studies.whatif.montecarlo",
     "pinlib.studies.whatif.cornersearch",
     "pinlib.studies.many",
+    "pinlib.studies.designpaths",
     "pinlib.present.plotdata",
     "pinlib.present.charts",
     "pinlib.present.widgets.common",

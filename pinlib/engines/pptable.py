@@ -58,6 +58,7 @@ import numpy as np
 from pinlib.engines import ppnodes
 from pinlib.engines import ppvariant as ppv
 from pinlib.engines.opendrain.rules import supply_margin
+from pinlib.engines.ppvariant import line_of_key
 from pinlib.engines.ppvariant import number_or_nan as _num
 from pinlib.engines.pushline import Flight
 from pinlib.engines.tablegrid import interpolate, rough_spans, stencil
@@ -127,7 +128,7 @@ def axes_of(specs: list[tuple], span: float, floor: float) -> list[Axis]:
     groups: dict[tuple, list] = {}
     for _, kind, _, tol, _, key in specs:
         # a line factor: one axis for every line at once; a rail or a device: its own axis
-        group = (kind, tol) if _line_of_key(key) is not None else (kind, key)
+        group = (kind, tol) if line_of_key(key) is not None else (kind, key)
         groups.setdefault(group, []).append((key, tol))
     out = []
     for (kind, _), members in groups.items():
@@ -135,10 +136,6 @@ def axes_of(specs: list[tuple], span: float, floor: float) -> list[Axis]:
         lo, hi = max(1.0 - span * tol, floor), 1.0 + span * tol
         out.append(Axis(kind, tuple(k for k, _ in members), lo, hi))
     return out
-
-
-def _line_of_key(key) -> str | None:
-    return key[2] if key[0] in ("line-length", "line-extra") else None
 
 
 @dataclass
@@ -286,8 +283,8 @@ class LineTable:
     def _coords(self, sig: str, factors: dict, n: int) -> np.ndarray:
         cols = []
         for ax, grid in zip(self.axes, self._grids, strict=True):
-            per_line = _line_of_key(ax.keys[0]) is not None
-            key = next((k for k in ax.keys if _line_of_key(k) == sig), None) if per_line \
+            per_line = line_of_key(ax.keys[0]) is not None
+            key = next((k for k in ax.keys if line_of_key(k) == sig), None) if per_line \
                 else ax.keys[0]
             f = factors.get(key) if key is not None else None
             cols.append(np.full(n, grid[0]) if f is None

@@ -16,6 +16,7 @@ from pinlib.model.design import Bus
 __all__ = [
     "parameter_specs",
     "rail_key",
+    "line_of_key",
     "vary_bus",
     "chosen_resistors",
     "check_names",
@@ -72,6 +73,12 @@ def parameter_specs(bus: Bus) -> list[tuple]:
             add(f"{bus.id} {sig} extra capacitance", "capacitance", 1.0, ctol, "",
                 ("line-extra", bus.id, sig))
     return out
+
+
+def line_of_key(key: tuple) -> str | None:
+    """The line a parameter key of :func:`parameter_specs` belongs to (its length or
+    extra capacitance), or None for one every line shares (a rail, a device's pins)."""
+    return key[2] if key[0] in ("line-length", "line-extra") else None
 
 
 def chosen_resistors(nominal) -> dict[str, float]:

@@ -26,6 +26,7 @@ import itertools
 import math
 from collections.abc import Callable
 from dataclasses import replace
+from typing import NamedTuple
 
 import numpy as np
 
@@ -40,7 +41,8 @@ from pinlib.engines.ppvariant import (
 from pinlib.model.design import Bus, Design
 from pinlib.model.result import BusResult
 
-__all__ = ["EXHAUSTIVE_LIMIT", "search", "rank_margin", "at_worst_corners", "method_text"]
+__all__ = ["EXHAUSTIVE_LIMIT", "search", "rank_margin", "at_worst_corners", "method_text",
+           "BoardRows"]
 
 #: Every vertex of the tolerance box is evaluated up to this many parameters (2**6 = 64
 #: evaluations, most of whose waveforms the run memo shares); above it, the screened
@@ -116,8 +118,35 @@ def method_text(k: int, limit: int = EXHAUSTIVE_LIMIT) -> str:
             "at the end that lowered its margin")
 
 
+class BoardRows(NamedTuple):
+    """The nominal board's checks at many boards (a corner evaluation over arrays,
+    :mod:`pinlib.engines.ppcorners`, that equals the engine board by board).
+
+    Attributes
+    ----------
+    rank : numpy.ndarray
+        Shape ``(n, m)``: each check's :func:`rank_margin` at each board, ``+inf`` where
+        the board lacks the check. [1]
+    present : numpy.ndarray
+        Shape ``(n, m)``: whether the board has the check (bool). [1]
+    figures : dict
+        Each of the bus figures taken at their lowest over the corners, shape ``(n,)``,
+        NaN where the board has none (None in its result). [1]
+    check : callable
+        ``check(i, j)``: the engine's check ``j`` at board ``i`` (for the boards whose
+        checks the result takes). [1]
+    """
+
+    rank: np.ndarray
+    present: np.ndarray
+    figures: dict
+    check: Callable[[int, int], object]
+
+
 def at_worst_corners(bus: Bus, design: Design, nominal: BusResult,
-                     evaluate: Callable[[Bus, Design], BusResult]) -> BusResult:
+                     evaluate: Callable[[Bus, Design], BusResult],
+                     boards: Callable[[np.ndarray], BoardRows | None] | None = None
+                     ) -> BusResult:
     """``nominal`` with every check taken at its worst corner.
 
     Parameters
@@ -130,6 +159,11 @@ def at_worst_corners(bus: Bus, design: Design, nominal: BusResult,
         ``evaluate(bus, design)``: the bus as designed. [1]
     evaluate : callable
         The engine at one board (no corners). [1]
+    boards : callable, optional
+        ``boards(u)``: the checks of the boards ``u`` (shape ``(n, k)``, none nominal)
+        as :class:`BoardRows`, equal to ``evaluate`` board by board, or None where it
+        cannot stand in for it; the engine then evaluates each board.  Either way the
+        engine evaluates in full only the boards whose checks the result takes. [1]
 
     Returns
     -------
@@ -143,34 +177,46 @@ def at_worst_corners(bus: Bus, design: Design, nominal: BusResult,
     specs = parameter_specs(bus)
     if not specs:
         return nominal
-    k = len(specs)
     chosen = chosen_resistors(nominal)
-    names = [nm["name"] for nm in check_names(bus, nominal)]
-    index = {nm: j for j, nm in enumerate(names)}
-    seen: dict[tuple, BusResult] = {}
-    rows: dict[tuple, dict[int, object]] = {}  # each board's checks by the nominal's index
+    index = {nm["name"]: j for j, nm in enumerate(check_names(bus, nominal))}
+    # each board's (rank, present, figures, its check j)
+    seen: dict[tuple, tuple] = {}
 
-    def board(u) -> tuple:
-        key = tuple(float(x) for x in u)
-        if key not in seen:
-            if not any(key):
-                seen[key] = nominal
-            else:
-                f = {s[-1]: 1.0 + s[3] * x for s, x in zip(specs, key, strict=True)}
-                seen[key] = evaluate(vary_bus(bus, f.get, chosen), design)
-            rows[key] = _by_index(bus, seen[key], index)
-        return key
+    def by_engine(key: tuple) -> None:
+        if not any(key):
+            res = nominal
+        else:
+            f = {s[-1]: 1.0 + s[3] * x for s, x in zip(specs, key, strict=True)}
+            res = evaluate(vary_bus(bus, f.get, chosen), design)
+        seen[key] = _row_of(_by_index(bus, res, index), res, len(index))
 
     def margins(u: np.ndarray) -> np.ndarray:
-        out = np.full((len(u), len(names)), np.inf)
-        for r, row in enumerate(u):
-            for j, c in rows[board(row)].items():
-                out[r, j] = rank_margin(c)
-        return out
+        keys = [tuple(float(x) for x in row) for row in u]
+        new = [key for key in dict.fromkeys(keys) if key not in seen and any(key)]
+        got = boards(np.array(new)) if boards is not None and new else None
+        for i, key in enumerate(new if got is not None else ()):
+            seen[key] = (got.rank[i], got.present[i],
+                         {f: None if math.isnan(v[i]) else float(v[i])
+                          for f, v in got.figures.items()},
+                         lambda j, i=i, got=got: got.check(i, j))
+        for key in keys:
+            if key not in seen:
+                by_engine(key)
+        return np.stack([seen[key][0] for key in keys])
 
     with run_scope():
-        worst = search(k, margins)
-    return _assemble(bus, nominal, specs, worst, board, rows, seen)
+        worst = search(len(specs), margins)
+        return _assemble(bus, nominal, specs, worst, seen)
+
+
+def _row_of(checks: dict[int, object], res: BusResult, m: int) -> tuple:
+    """One board's (rank, present, figures, its check j) from its result (``checks``:
+    by index)."""
+    rank, present = np.full(m, np.inf), np.zeros(m, dtype=bool)
+    for j, c in checks.items():
+        rank[j], present[j] = rank_margin(c), True
+    figs = {f: res.figures[f].value for f in _LOWEST_FIGURES if f in res.figures}
+    return rank, present, figs, checks.__getitem__
 
 
 def _by_index(bus: Bus, res: BusResult, index: dict[str, int]) -> dict[int, object]:
@@ -195,32 +241,26 @@ def _corner_text(specs, u, moves=None) -> str:
     return ", ".join(parts) if parts else "nominal"
 
 
-def _assemble(bus, nominal, specs, worst, board, rows, seen) -> BusResult:
-    """The worst-case result: each check from its worst board (``rows``: each board's
-    checks by index, :func:`_by_index`)."""
-    picked = {}
-    for j, u in enumerate(worst):
-        c = rows[board(u)].get(j)
-        if c is not None:
-            picked[j] = (c, u)
+def _assemble(bus, nominal, specs, worst, seen) -> BusResult:
+    """The worst-case result: each check from its worst board (``seen``: each board's
+    ranked margins and checks, :func:`_row_of`)."""
     names = check_names(bus, nominal)
 
     def worst_check(j, c):
-        got = picked.get(j)
-        if got is None or not any(got[1]) or rank_margin(got[0]) >= rank_margin(c):
+        key = tuple(float(x) for x in worst[j])
+        rank, present, _, check = seen[key]
+        if not any(key) or not present[j] or rank[j] >= rank_margin(c):
             return c  # no corner is worse than the board as designed
-        w, u = got
+        w, b = check(j), rank[j]
 
         def moves(i):  # flipping parameter i changes the check (unknown: say it does)
-            v = np.array(u, dtype=float)
-            v[i] = -v[i]
-            oc = rows.get(tuple(float(x) for x in v), {}).get(j)
-            if oc is None:
+            flipped = key[:i] + (-key[i],) + key[i + 1:]
+            if flipped not in seen or not seen[flipped][1][j]:
                 return True
-            a, b = rank_margin(oc), rank_margin(w)
+            a = seen[flipped][0][j]
             return not (a == b or abs(a - b) <= 1e-12 * max(1.0, abs(b)))
 
-        text = _corner_text(specs, u, moves)
+        text = _corner_text(specs, key, moves)
         return replace(w, message=f"{w.message} (worst corner: {text})",
                        details={**w.details, "corner": text})
 
@@ -239,7 +279,7 @@ def _assemble(bus, nominal, specs, worst, board, rows, seen) -> BusResult:
     assert j == len(names)
     for fig in _LOWEST_FIGURES:
         if fig in out.figures and out.figures[fig].value is not None:
-            vals = [r.figures[fig].value for r in seen.values() if fig in r.figures]
+            vals = [row[2][fig] for row in seen.values() if fig in row[2]]
             # a board where it does not exist (a receiver that never switches) is the worst
             low = None if None in vals else min(float(v) for v in vals)
             out.figures[fig] = replace(out.figures[fig], value=low)

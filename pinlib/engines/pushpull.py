@@ -27,7 +27,7 @@ from dataclasses import replace
 
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError
-from pinlib.engines.opendrain.rules import supply_range_check
+from pinlib.engines.ppsupply import supply_checks, supply_rows
 from pinlib.engines.pushline import Endpoint, LineInputs, device_supply
 from pinlib.engines.spi import evaluate_spi, spi_line_inputs
 from pinlib.library.schema import Pin
@@ -202,39 +202,6 @@ def evaluate_gpio(bus: Bus, design: Design, *, analysis: dict | None = None) -> 
     return res
 
 
-# --------------------------------------------------------------------------- supply
-
-
-def supply_rows(bus: Bus) -> list[tuple]:
-    """Each device of the bus whose part states a supply range:
-    ``(device, rail, min, max, source)``, the rail the device runs from (its own, else
-    the bus's) and its part's range on that side. [V]"""
-    out, seen = [], set()
-    for d in bus.devices:
-        if d.ref in seen:
-            continue
-        seen.add(d.ref)
-        sup = d.part.supply_for((d.side or "a") if d.is_bridge else None)
-        if sup is None:
-            continue
-        why = sup.min.source or d.part.provenance.source or "part file"
-        out.append((d, device_supply(d, bus), float(sup.min.value), float(sup.max.value),
-                    f"{d.part_id} supply ({why})"))
-    return out
-
-
-def supply_checks(bus: Bus) -> list[Check]:
-    """Every device's rail against its part's supply range (the rule of the open-drain
-    engine: :func:`pinlib.engines.opendrain.rules.supply_range_check`, a datasheet range is a
-    hard limit, no warning band).  The rail's tolerance enters through the corners
-    :func:`evaluate_bus` takes. [V]"""
-    out = []
-    for d, v, lo, hi, src in supply_rows(bus):
-        chk = supply_range_check(d.ref, v, v, lo, hi, lambda _low, src=src: src, ends=False)
-        out.append(chk)
-    return out
-
-
 # --------------------------------------------------------------------------- entry
 
 
@@ -264,9 +231,12 @@ def evaluate_bus(bus: Bus, design: Design) -> BusResult:
     DesignError
         A line no device drives, a controller without the outputs an SPI bus needs.
     """
+    from pinlib.engines.ppcorners import corner_rows
     from pinlib.engines.ppworst import at_worst_corners
 
-    return at_worst_corners(bus, design, evaluate_board(bus, design), evaluate_board)
+    nominal = evaluate_board(bus, design)
+    return at_worst_corners(bus, design, nominal, evaluate_board,
+                            corner_rows(bus, design, nominal))
 
 
 def evaluate_board(bus: Bus, design: Design, *, analysis=None) -> BusResult:

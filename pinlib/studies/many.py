@@ -13,9 +13,9 @@ import os
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from pinlib.core import messages as M
-from pinlib.core.errors import InputError, PinlibError
+from pinlib.core.errors import PinlibError
 from pinlib.core.progress import progress_bar
+from pinlib.studies.designpaths import expand_designs
 
 __all__ = ["DesignSummary", "SwapSummary", "check_one", "check_many", "default_jobs",
            "swap_in_design", "used_by", "expand_designs",
@@ -110,24 +110,6 @@ def _against_snapshot(out: DesignSummary, design, result, threshold) -> None:
     out.snapshot = "compared"
     out.changes = changes.to_json()
     out.changes_text = changes.format_text()
-
-
-def expand_designs(items) -> list[Path]:
-    """The design files named: each item a file, or a glob pattern (``*``, ``?``, ``[``;
-    ``**`` reaches into sub-folders), its matches sorted; each file once, in order."""
-    import glob
-
-    out: dict[Path, None] = {}
-    for item in items:
-        if glob.has_magic(item):
-            found = sorted(glob.glob(item, recursive=True))
-            found = [f for f in found if os.path.isfile(f)]
-            if not found:
-                raise InputError(M.NO_DESIGN_MATCHES, field="DESIGN", value=item)
-            out.update((Path(f), None) for f in found)
-        else:
-            out[Path(item)] = None
-    return list(out)
 
 
 def default_jobs(n_designs: int) -> int:

@@ -121,7 +121,7 @@ def seed_type(text):
 def run(args) -> int:
     """One design: the full report, as always; several (or a pattern matching several):
     one line per design."""
-    from pinlib.studies.many import expand_designs
+    from pinlib.studies.designpaths import expand_designs
 
     paths = expand_designs(args.designs)
     if len(paths) == 1 and not args.against_snapshots:

@@ -75,7 +75,7 @@ def _stated_tof(d):
     return None if t is None else getattr(t, "value", t)
 
 
-def output_fall(lim, d, cb, v, link, rp_lo):
+def output_fall(lim, d, cb, v, link, rp_lo, mode=None):
     """The output fall time that bounds driver ``d`` by itself, where one does.
 
     A driver's part may state ``t_of_max``; else on an I2C bus a driver whose sink meets
@@ -84,6 +84,9 @@ def output_fall(lim, d, cb, v, link, rp_lo):
     for a bus capacitance inside the table's range.  Either holds at the pin (not through
     a series resistor or a translator's on-resistance) and under a legal load: the
     pull-up (at −tolerance, ``rp_lo``) draws at most the driver's IOL at its VOL.
+
+    ``mode``: what :func:`mode_fall` gives for ``lim`` and ``v``, when the caller has it
+    (one line's drivers share it).
 
     Returns
     -------
@@ -97,7 +100,7 @@ def output_fall(lim, d, cb, v, link, rp_lo):
     if link is not None:
         return None, BY_SINK, f"it pulls the line through {link.dev.ref}'s on-resistance"
     stated = _stated_tof(d)
-    spec = lim.output_fall()
+    spec, point = mode_fall(lim, v) if mode is None else mode
     if stated is None and spec is None:
         return None, BY_SINK, "SMBus states no output fall time"
     bare = np.asarray(d.r_series) == 0
@@ -107,7 +110,7 @@ def output_fall(lim, d, cb, v, link, rp_lo):
     if stated is not None:
         t, kind = np.asarray(stated, dtype=float), BY_PART
     else:
-        vol, iol = lim.sink_point(v)
+        vol, iol = point()
         checks.append(((np.asarray(d.i_ol) >= iol) & (np.asarray(d.v_ol) <= vol),
                        "its sink point is weaker than the mode's (VOL, IOL)"))
         checks.append(((np.asarray(cb) >= spec.cb_min) & (np.asarray(cb) <= spec.cb_max),
@@ -121,6 +124,21 @@ def output_fall(lim, d, cb, v, link, rp_lo):
         if not why and not cond.all():
             why = reason
     return np.where(ok, t, np.inf), kind, why
+
+
+def mode_fall(lim, v) -> tuple:
+    """The mode's output fall guarantee (``lim.output_fall()``) and a function giving its
+    sink point at the rail ``v`` (``lim.sink_point(v)``, worked out once when first
+    asked): what :func:`output_fall` reads of the mode, the same for every driver of a
+    line."""
+    got: list = []
+
+    def point():
+        if not got:
+            got.append(lim.sink_point(v))
+        return got[0]
+
+    return lim.output_fall(), point
 
 
 def fall_bounds(lim, rp_lo, cb, v, drivers, far, segs, signal: str, phys=pu) -> list:
@@ -141,10 +159,11 @@ def fall_bounds(lim, rp_lo, cb, v, drivers, far, segs, signal: str, phys=pu) -> 
     pairs += [(d, link, d.r_series + link.r_on)
               for d, link, _, _ in far_drivers(far, segs, signal)]
     out = []
+    mode = mode_fall(lim, v)
     for d, link, r_s in pairs:
         t_sink = np.asarray(phys.fall_time_bound(rp_lo, cb, v, d.v_ol, d.i_ol, v_hi, v_lo,
                                                  r_s), dtype=float)
-        t_of, kind, why = output_fall(lim, d, cb, v, link, rp_lo)
+        t_of, kind, why = output_fall(lim, d, cb, v, link, rp_lo, mode)
         t = t_sink if t_of is None else np.minimum(t_sink, t_of)
         out.append((t, d, link, {"t_sink": t_sink, "t_of": t_of, "kind": kind, "why": why}))
     return out

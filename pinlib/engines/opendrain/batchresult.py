@@ -278,30 +278,28 @@ def _finish_one(pending, rows) -> None:
         # each row's cells as they come (one value, or one per corner), then the
         # check's number of corners: the most any cell has (as _corners for many)
         raw = [[_cells(x) for x in rows[j]] for j in range(p.r0, p.r1)]
-        k = max(len(c) for cells in raw for c in cells)
+        k = max([len(c) for cells in raw for c in cells])
         p.k, p.single = k, p.single and k == 1
-        m, v, lim = {}, {}, {}
-        best, worst_of = None, []
-        for j, (vs, ls, ss, gs) in enumerate(raw, p.r0):
+        worst_of = []
+        best = None   # (key, margin, value, limit, row, corner) of the worst cell
+        for j, (vs, ls, ss, gs) in enumerate(raw):
             if k > 1:
                 vs, ls, ss, gs = (c if len(c) == k else c * k for c in (vs, ls, ss, gs))
-            v[j], lim[j] = vs, ls
-            m[j] = ms = [_margin(vs[c], ls[c], ss[c], gs[c]) for c in range(k)]
-            row_best = None
+            row_best = None   # the first of equal margins, NaN counted as the worst
             for c in range(k):
-                x = ms[c]
+                x = _margin(vs[c], ls[c], ss[c], gs[c])
                 key = -math.inf if x != x else x
                 if row_best is None or key < row_best[0]:
-                    row_best = (key, c)
-            worst_of.append(ms[row_best[1]])
+                    row_best = (key, x, vs[c], ls[c], j, c)
+            worst_of.append(row_best[1])
             if best is None or row_best[0] < best[0]:
-                best = (row_best[0], j, row_best[1])
-        _, j, c = best
-        w = p.warn[j - p.r0] if isinstance(p.warn, (list, tuple)) else p.warn
+                best = row_best
+        _, m, v, lim, j, c = best
+        w = p.warn[j] if isinstance(p.warn, (list, tuple)) else p.warn
         w = w if type(w) is float else float(np.ravel(w)[0])
-        nums += (m[j][c], v[j][c], lim[j][c])
-        codes.append(_status(m[j][c], w))
-        where += (j - p.r0, c)
+        nums += (m, v, lim)
+        codes.append(_status(m, w))
+        where += (j, c)
         if p.per_row:
             p.chk.row_margins = np.array([worst_of])
     nums, codes, where = np.array(nums), np.array(codes, dtype=np.int8), np.array(where)

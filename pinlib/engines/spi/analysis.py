@@ -79,10 +79,7 @@ class SpiAnalysis:
         ``(clock, name, source)``, the name as ``"cipo-setup U2"`` or ``"f_max U1"`` and
         the source of its limit; an unlimited bus gives ``[(inf, "nothing", "")]``. The
         first sets :meth:`max_clock`. [Hz]"""
-        # one margin per row: each row's clock is its own margin's (elementwise)
-        f_terms = np.atleast_1d(max_clock([[t.a] for t in self.terms],
-                                          [[_finite_or_inf(t.required - t.b)]
-                                           for t in self.terms])) if self.terms else ()
+        f_terms = term_clocks(self.terms)
         out = [(float(f), f"{t.id} {t.subject}",
                 t.source or "not recorded by the part: taken as 0")
                for f, t in zip(f_terms, self.terms, strict=True)]
@@ -104,6 +101,38 @@ class SpiAnalysis:
 
 def _finite_or_inf(x: float) -> float:
     return x if math.isfinite(x) else math.inf
+
+
+def term_clocks(terms: list) -> np.ndarray:
+    """Each timing term's own highest clock (:func:`~pinlib.engines.spi.margins.max_clock`
+    of its one margin), shape ``(len(terms),) + shape of b``: ``b`` may be an array of
+    boards (:mod:`pinlib.engines.ppcorners`), each clock then elementwise. [Hz]"""
+    if not terms:
+        return np.zeros((0,))
+    b = np.broadcast_arrays(*[np.asarray(t.b, dtype=float) for t in terms])
+    a = np.array([t.a for t in terms], dtype=float).reshape((-1,) + (1,) * b[0].ndim)
+    k = np.stack([t.required - x for t, x in zip(terms, b, strict=True)])
+    k = np.where(np.isfinite(k), k, math.inf)
+    return max_clock(np.broadcast_to(a, k.shape)[..., None], k[..., None])
+
+
+def line_flights(sig: str, la, controller: Device, p: Device, bus: Bus):
+    """The flights one routed line gives a peripheral's timing budget: on ``sclk`` each
+    edge's (``{"rise": Flight, "fall": Flight}``) from the controller, on ``copi`` both
+    edges' and on ``cs`` its asserting edge's from the controller, on ``cipo`` both
+    edges' from the peripheral back to the controller; None where the peripheral (or,
+    on ``cipo``, the controller) has no pin on the line or does not drive it. [s]"""
+    cases = la.cases
+    if sig == "cipo":
+        back = endpoint(controller, SIGNAL_FUNCTION["cipo"], bus)
+        return None if back is None or p.ref not in cases else cases[p.ref].flight_both(back)
+    e = endpoint(p, SIGNAL_FUNCTION[sig], bus)
+    if e is None:
+        return None
+    case = cases[controller.ref]
+    if sig == "sclk":
+        return {edge: case.flight(e, edge) for edge in ("rise", "fall")}
+    return case.flight_both(e) if sig == "copi" else case.flight(e, "fall")
 
 
 def _sourced_text(device: Device, name: str) -> str:
@@ -131,7 +160,7 @@ def _timing_value(device: Device, name: str) -> float | None:
 
 
 def _spi_lines(bus: Bus, design: Design) -> tuple[dict, Device, list, list, list]:
-    inputs, controller, peripherals, bridges, notes = _line_inputs(bus, design)
+    inputs, controller, peripherals, bridges, notes = line_setup(bus, design)
     out = {sig: li.analyse() for sig, li in inputs.items()}
     return out, controller, peripherals, bridges, notes
 
@@ -157,10 +186,15 @@ def spi_line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
     DesignError
         As :func:`spi_analysis`.
     """
-    return list(_line_inputs(bus, design)[0].values())
+    return list(line_setup(bus, design)[0].values())
 
 
-def _line_inputs(bus: Bus, design: Design) -> tuple[dict, Device, list, list, list]:
+def line_setup(bus: Bus, design: Design,
+               only: str | None = None) -> tuple[dict, Device, list, list, list]:
+    """What :func:`spi_analysis` starts from: the :class:`LineInputs` of each line it
+    analyses (by signal, in its order; of the line ``only`` alone when given), the
+    controller, the peripherals and the bridging parts (devices of ``bus``), and the
+    notes of what it skips. [1]"""
     controllers = bus.controllers
     controller = controllers[0]
     notes = []
@@ -171,7 +205,7 @@ def _line_inputs(bus: Bus, design: Design) -> tuple[dict, Device, list, list, li
     warn = design.warn_margin
     out = {}
     for sig in _SPI_ORDER:
-        if sig not in bus.lines:
+        if sig not in bus.lines or only not in (None, sig):
             continue
         fn = SIGNAL_FUNCTION[sig]
         line = bus.lines[sig]
@@ -235,24 +269,15 @@ def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
             t_bridge += float(b.part.timing.t_pd.at())
             notes.append(f"{b.ref} ({b.part_id}) t_pd {b.part.timing.t_pd.text} in every path "
                          "(twice on the CIPO round trip)")
-    sclk = lines.get("sclk")
     periph_t = []
-    ctl_sclk = None if sclk is None else sclk.cases[controller.ref]
-    ctl_cipo = endpoint(controller, SIGNAL_FUNCTION["cipo"], bus)
     for p in peripherals:
-        if ctl_sclk is None:
+        sclk_f = None if "sclk" not in lines else line_flights(
+            "sclk", lines["sclk"], controller, p, bus)
+        if sclk_f is None:
             continue
-        ep = endpoint(p, SIGNAL_FUNCTION["sclk"], bus)
-        if ep is None:
-            continue
-        sclk_f = {e: ctl_sclk.flight(ep, e) for e in ("rise", "fall")}
-        copi = cs = cipo = None
-        if "copi" in lines and (e := endpoint(p, SIGNAL_FUNCTION["copi"], bus)) is not None:
-            copi = lines["copi"].cases[controller.ref].flight_both(e)
-        if "cs" in lines and (e := endpoint(p, SIGNAL_FUNCTION["cs"], bus)) is not None:
-            cs = lines["cs"].cases[controller.ref].flight(e, "fall")
-        if "cipo" in lines and p.ref in lines["cipo"].cases and ctl_cipo is not None:
-            cipo = lines["cipo"].cases[p.ref].flight_both(ctl_cipo)
+        copi, cs, cipo = (None if sig not in lines else
+                          line_flights(sig, lines[sig], controller, p, bus)
+                          for sig in ("copi", "cs", "cipo"))
         tv = _timing_value(p, "t_valid")
         if cipo is not None and tv is None:
             notes.append(f"{p.ref} ({p.part_id}) records no t_valid: CIPO setup not checked")

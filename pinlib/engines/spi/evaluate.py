@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 from pinlib.engines.pushline import (
     EDGE_FRACTION,
 )
@@ -23,6 +25,10 @@ _TERM_TEXT = {
     "cs-setup": ("CS setup at {ref}", "CS leads the first edge by {avail} against "
                                       "t_cs_setup {req}"),
 }
+
+#: The bus figures that hold the lowest margin of a term id over the peripherals.
+MARGIN_FIGURES = (("cipo_setup_margin", "cipo-setup"), ("copi_setup_margin", "copi-setup"),
+                  ("copi_hold_margin", "copi-hold"))
 
 
 def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = None) -> BusResult:
@@ -56,16 +62,13 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
     res.notes.append(f"timing reference: {TIMING_REFERENCE}")
     warn = design.warn_margin
     clock = float(bus.clock)
-    worst: dict[str, float | None] = {}
     why: dict[str, str] = {}
     for t in sa.terms:
-        chk = res.add(_term_check(t, clock, warn, sa.mode.mode))
+        chk = res.add(term_check(t, clock, warn, sa.mode.mode))
         if chk.reason is not None:
-            worst[t.id] = None   # no time exists; the check fails and says why
-            why.setdefault(t.id, chk.reason)
-        elif t.id not in worst or worst[t.id] is not None:
-            m = float(chk.value) - t.required
-            worst[t.id] = min(worst.get(t.id, math.inf), m)
+            why.setdefault(t.id, chk.reason)   # no time exists; the check fails and says why
+    worst = {tid: None if math.isnan(m) else float(m)
+             for tid, m in lowest_margins(sa.terms, clock).items()}
     for ref, f, source in sa.f_limits:
         res.add(check_max("f-max", clock, f, "Hz", source,
                           f"clock {_fmt(clock, 'Hz')} against {ref}'s f_max {_fmt(f, 'Hz')}",
@@ -86,8 +89,7 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
                          f"which every far-end edge keeps within {EDGE_FRACTION:.0%} of the "
                          f"period (rule of thumb; set by {edge_sig}); it warns, it does not "
                          "limit")
-    for fig, tid in (("cipo_setup_margin", "cipo-setup"), ("copi_setup_margin", "copi-setup"),
-                     ("copi_hold_margin", "copi-hold")):
+    for fig, tid in MARGIN_FIGURES:
         res.figure(fig, worst.get(tid), "s")
         if tid not in worst:
             res.notes.append(f"{fig}: not computed (signal not routed or data missing)")
@@ -96,7 +98,21 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
     return res
 
 
-def _term_check(t: Term, clock: float, warn: float, mode: int):
+def lowest_margins(terms: list, clock: float) -> dict:
+    """The figures ``cipo_setup_margin``, ``copi_setup_margin``...: for each term id, the
+    lowest available minus required time over its peripherals at ``clock``, NaN where
+    one of them has no finite available time (the figure is then None).  A term's ``b``
+    may be an array of boards (:mod:`pinlib.engines.ppcorners`): elementwise. [s]"""
+    out: dict = {}
+    period = 1.0 / clock
+    for t in terms:
+        avail = np.asarray(t.available(period), dtype=float)
+        m = np.where(np.isfinite(avail), avail - t.required, np.nan)
+        out[t.id] = m if t.id not in out else np.minimum(out[t.id], m)
+    return out
+
+
+def term_check(t: Term, clock: float, warn: float, mode: int) -> Check:
     """The check of one timing term at the clock; when a flight has no finite time (a
     receiver that never crosses its threshold) a failing check without a value, whose
     ``reason`` says why."""

@@ -87,6 +87,8 @@ def _first_upward(t: np.ndarray, u: np.ndarray, level, start=None, valid=None) -
     Returns the interpolated time (NaN where there is none) and the index of the first
     sample at or above the level (0 where there is none).
     """
+    if u.ndim == 1 and np.ndim(level) == 0:
+        return _first_upward_1d(t, u, float(level), start, valid)
     level = np.asarray(level, dtype=float)[..., None]
     reached = u >= level
     if start is not None:
@@ -106,6 +108,24 @@ def _first_upward(t: np.ndarray, u: np.ndarray, level, start=None, valid=None) -
     frac = np.where(interpolate, (level[..., 0] - u0) / du, 0.0)
     tc = np.where(interpolate, t0 + frac * (t1 - t0), t1)
     return np.where(found, tc, np.nan), k, found
+
+
+def _first_upward_1d(t: np.ndarray, u: np.ndarray, level: float, start, valid) -> tuple:
+    """:func:`_first_upward` of one record and one level: the same numbers (the same
+    float64 operations on the two samples around the crossing) without the batch's
+    gathers, as the batch path returns them for one record."""
+    reached = u >= level
+    if start is not None:
+        reached[:int(start)] = False
+    if valid is not None:
+        reached &= valid
+    k = int(reached.argmax())
+    if not reached[k]:
+        return np.asarray(np.nan), np.intp(0), np.False_
+    if k == 0:
+        return np.asarray(t[0]), np.intp(0), np.True_
+    u0, u1, t0 = u[k - 1], u[k], t[k - 1]
+    return np.asarray(t0 + (level - u0) / (u1 - u0) * (t[k] - t0)), np.intp(k), np.True_
 
 
 def edge_time(t, v, v_final, lo=0.1, hi=0.9, *, v_initial=0.0, n_valid=None):
@@ -321,6 +341,9 @@ def recrossings(t, v, v_il, v_ih, *, edge="rise", n_valid=None):
                          expected=f"v_ih > v_il = {v_il} [V]")
     # Mirror a falling edge onto a rising one: its entry threshold is VIL.
     u = sign * v
+    if u.ndim == 1 and n_valid is None and v_il.ndim == 0 and v_ih.ndim == 0:
+        return _recrossings_1d(t, u, float(v_ih if sign > 0 else -v_il),
+                               float(v_il if sign > 0 else -v_ih))
     th_entry = np.where(sign > 0, v_ih, -v_il)[..., None]
     th_opposite = np.where(sign > 0, v_il, -v_ih)[..., None]
     th_entry, th_opposite = np.broadcast_arrays(th_entry, th_opposite)
@@ -362,3 +385,30 @@ def recrossings(t, v, v_il, v_ih, *, edge="rise", n_valid=None):
         return x[()] if np.ndim(x) == 0 else x
 
     return Recrossings(_out(n_entry), _out(n_opposite), _out(t_settled))
+
+
+def _recrossings_1d(t: np.ndarray, u: np.ndarray, th_entry: float,
+                    th_opposite: float) -> Recrossings:
+    """:func:`recrossings` of one whole record (``u`` mirrored onto a rising edge, its
+    two thresholds): the same counts and the same float64 operations for the time, on
+    the samples from the first arrival on.  There ``u`` starts at or above both
+    thresholds, so its crossings of each alternate, a fall first: the falls are every
+    other crossing, and the last rise of the entry threshold is the last crossing when
+    their number is even."""
+    t_first, k, found = _first_upward_1d(t, u, th_entry, None, None)
+    if not found:
+        return Recrossings(np.int64(0), np.int64(0), np.float64(np.nan))
+    a = u[k:]
+    above_e = a >= th_entry
+    cross_e = np.flatnonzero(above_e[1:] != above_e[:-1])
+    above_o = a >= th_opposite
+    n_opposite = np.count_nonzero(above_o[1:] != above_o[:-1])
+    t_settled = t_first[()]
+    if cross_e.size >= 2:   # the last upward crossing of the entry threshold
+        last = k + int(cross_e[-1] if cross_e.size % 2 == 0 else cross_e[-2])
+        u0, u1, t0 = u[last], u[last + 1], t[last]
+        t_settled = t0 + (th_entry - u0) / (u1 - u0) * (t[last + 1] - t0)
+    if not u[-1] >= th_entry:   # it ends below: not settled
+        t_settled = np.float64(np.nan)
+    return Recrossings(np.int64((cross_e.size + 1) // 2), np.int64((n_opposite + 1) // 2),
+                       t_settled)

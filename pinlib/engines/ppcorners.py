@@ -1,0 +1,244 @@
+"""An SPI bus's checks at many corners of its tolerances, as arrays, equal to the engine
+board by board (:func:`corner_rows`, for :func:`pinlib.engines.ppworst.at_worst_corners`).
+
+A board of the worst-corner search differs from the next only in its factors, and what
+the engine makes of it falls apart along them:
+
+* each routed line's analysis (its checks, and the flights it gives each peripheral's
+  budget) depends only on that line's own factors (length, extra capacitance) and the
+  ones every line shares (the rails, the devices' pin capacitances): it is made once per
+  distinct combination of those (the line engine, :meth:`LineInputs.analyse`), not once
+  per board;
+* the devices' ``supply-range`` checks depend only on the shared factors (the engine's
+  :func:`pinlib.engines.ppsupply.supply_checks`, once per combination);
+* the timing budget sums flights of several lines: :func:`pinlib.engines.spi.budget_terms`
+  takes them as arrays over the boards, each term's available time and margin as the
+  engine computes them (elementwise, the same operations in the same order, so the
+  same numbers to the last bit), and the bus figures ``max_clock`` and the lowest timing
+  margins likewise (:func:`~pinlib.engines.spi.analysis.term_clocks`,
+  :func:`~pinlib.engines.spi.evaluate.lowest_margins`);
+* the parts' ``f-max`` checks depend on no toleranced value: the nominal board's.
+
+A bus whose nominal result is not laid out that way (a check the budget did not make, a
+peripheral whose flights differ in kind between boards) is left to the engine board by
+board (:func:`corner_rows` or the evaluator returns None).  GPIO buses are too.
+``tests/test_ppcorners.py`` holds the arrays to the engine's boards.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import replace
+
+import numpy as np
+
+from pinlib.engines.ppsupply import supply_checks
+from pinlib.engines.ppvariant import (
+    check_names,
+    chosen_resistors,
+    line_of_key,
+    parameter_specs,
+    vary_bus,
+)
+from pinlib.engines.ppworst import BoardRows, rank_margin
+from pinlib.engines.pushline import Flight
+from pinlib.engines.spi import budget_terms
+from pinlib.engines.spi.analysis import SpiAnalysis, line_flights, line_setup, term_clocks
+from pinlib.engines.spi.budget import Term
+from pinlib.engines.spi.evaluate import MARGIN_FIGURES, lowest_margins, term_check
+from pinlib.model.design import Bus, Design
+from pinlib.model.result import BusResult, LineResult, min_margin
+
+__all__ = ["corner_rows"]
+
+_FIELDS = ("sclk", "copi", "cs", "cipo")
+
+
+def corner_rows(bus: Bus, design: Design,
+                nominal: BusResult) -> Callable[[np.ndarray], BoardRows | None] | None:
+    """The evaluator of many corner boards of an SPI bus as arrays.
+
+    Parameters
+    ----------
+    bus : Bus
+        A bus of ``design``. [1]
+    design : Design
+        The design. [1]
+    nominal : BusResult
+        The engine's result of the bus as designed (``evaluate_board``). [1]
+
+    Returns
+    -------
+    callable or None
+        ``rows(u)`` for boards ``u`` of shape ``(n, k)`` (each entry the end of a
+        parameter of :func:`~pinlib.engines.ppvariant.parameter_specs`, -1, 0 or +1; no
+        row all 0): a :class:`~pinlib.engines.ppworst.BoardRows` in the order of
+        ``check_names(bus, nominal)``, or None where the boards' results are not laid
+        out as the nominal's.  None for a bus it does not serve (not SPI, or a nominal
+        result whose bus checks are not the budget's terms, the parts' ``f-max`` and
+        the devices' ``supply-range``, in that order).
+    """
+    sa = nominal.workings
+    if bus.protocol != "spi" or not isinstance(sa, SpiAnalysis) or not bus.clock:
+        return None
+    n_line = sum(len(ln.checks) for ln in nominal.lines)
+    own = [c.id for c in nominal.checks]
+    n_terms, n_f = len(sa.terms), len(sa.f_limits)
+    if (own[:n_terms] != [t.id for t in sa.terms]
+            or own[n_terms:n_terms + n_f] != ["f-max"] * n_f
+            or any(i != "supply-range" for i in own[n_terms + n_f:])):
+        return None
+    return _Corners(bus, design, nominal, sa, n_line).rows
+
+
+class _Corners:
+    """What :func:`corner_rows` keeps of the nominal board between calls."""
+
+    def __init__(self, bus: Bus, design: Design, nominal: BusResult, sa: SpiAnalysis,
+                 n_line: int):
+        self.bus, self.design, self.sa, self.n_line = bus, design, sa, n_line
+        self.specs = parameter_specs(bus)
+        self.chosen = chosen_resistors(nominal)
+        self.index = {nm["name"]: j for j, nm in enumerate(check_names(bus, nominal))}
+        self.fixed = {n_line + len(sa.terms) + q: nominal.checks[len(sa.terms) + q]
+                      for q in range(len(sa.f_limits))}
+        self.warn = design.warn_margin
+        self.n_supply = len(nominal.checks) - len(sa.terms) - len(sa.f_limits)
+
+    def _variants(self, u: np.ndarray, sig: str | None):
+        """The distinct factors of the boards on one line (``sig``; None: the factors
+        every line shares) and each board's index among them."""
+        cols = [i for i, s in enumerate(self.specs) if line_of_key(s[-1]) in (None, sig)]
+        uniq, inverse = np.unique(u[:, cols], axis=0, return_inverse=True)
+        buses = []
+        for row in uniq:
+            f = {self.specs[i][-1]: 1.0 + self.specs[i][3] * x
+                 for i, x in zip(cols, row, strict=True)}
+            buses.append(vary_bus(self.bus, f.get, self.chosen))
+        return buses, np.asarray(inverse).reshape(-1)
+
+    def rows(self, u: np.ndarray) -> BoardRows | None:
+        """The checks of the boards ``u`` (see :func:`corner_rows`)."""
+        n, m = len(u), len(self.index)
+        rank, present = np.full((n, m), np.inf), np.zeros((n, m), dtype=bool)
+        checks: dict = {}   # check index -> its check at board i (a function of i)
+        flights: dict = {}
+        for sig in self.sa.lines:
+            got = self._line(u, sig, rank, present, checks)
+            if got is None:
+                return None
+            flights[sig] = got
+        terms = budget_terms(self.sa.mode, self.sa.controller,
+                             self._peripherals(flights), self.sa.t_bridge)
+        if [t.id for t in terms] != [t.id for t in self.sa.terms]:
+            return None
+        clock = float(self.bus.clock)
+        j0 = self.n_line
+        for q, t in enumerate(terms):
+            avail = np.asarray(t.available(1.0 / clock), dtype=float)
+            mg = min_margin(np.where(np.isfinite(avail), avail, 0.0), t.required)
+            # no finite available time: the check fails without a margin (rank_margin)
+            mg = np.where(np.isfinite(avail) & ~np.isnan(mg), mg, -np.inf)
+            rank[:, j0 + q], present[:, j0 + q] = mg, True
+            checks[j0 + q] = lambda i, t=t: term_check(_term_at(t, i), clock, self.warn,
+                                                       self.sa.mode.mode)
+        for j, c in self.fixed.items():
+            rank[:, j], present[:, j] = rank_margin(c), True
+            checks[j] = lambda i, c=c: c
+        if not self._supply(u, rank, present, checks):
+            return None
+        return BoardRows(rank, present, self._figures(terms, clock, n),
+                         lambda i, j: checks[j](i))
+
+    def _line(self, u, sig, rank, present, checks) -> dict | None:
+        """One line's checks into ``rank``/``present`` and, per peripheral, the flights it
+        gives: ``{(peripheral index, field): (early, late)}``, each of shape ``(n,)``."""
+        buses, inverse = self._variants(u, sig)
+        nv = len(buses)
+        cols: dict[int, np.ndarray] = {}
+        out: dict = {}
+        count: dict = {}   # how many variants give each flight (all, or the bus is not served)
+        held: dict = {}    # check index -> its check in each variant
+        for v, bus_v in enumerate(buses):
+            inputs, controller, peripherals, _, _ = line_setup(bus_v, self.design, sig)
+            la = inputs[sig].analyse()
+            res = BusResult(id=self.bus.id, lines=[LineResult(signal=sig,
+                                                              checks=la.result.checks)])
+            for nm, c in zip(check_names(self.bus, res), la.result.checks, strict=True):
+                j = self.index.get(nm["name"])
+                if j is not None:
+                    cols.setdefault(j, np.full(nv, np.nan))[v] = rank_margin(c)
+                    held.setdefault(j, [None] * nv)[v] = c
+            by_ref = {p.ref: p for p in peripherals}
+            for i, p0 in enumerate(self.sa.peripherals):
+                fl = line_flights(sig, la, controller, by_ref[p0.ref], bus_v)
+                pieces = fl.items() if isinstance(fl, dict) else [(None, fl)]
+                for edge, f in pieces:
+                    if f is None:
+                        continue
+                    e, late = out.setdefault((i, edge), (np.full(nv, np.nan),
+                                                         np.full(nv, np.nan)))
+                    e[v], late[v] = f.early, f.late
+                    count[(i, edge)] = count.get((i, edge), 0) + 1
+        if any(c != nv for c in count.values()):
+            return None
+        for j, col in cols.items():
+            has = ~np.isnan(col)   # a rank is never NaN (rank_margin): NaN, no such check
+            rank[:, j] = np.where(has, col, np.inf)[inverse]
+            present[:, j] = has[inverse]
+            checks[j] = lambda i, got=held[j]: got[inverse[i]]
+        return {k: (e[inverse], late[inverse]) for k, (e, late) in out.items()}
+
+    def _peripherals(self, flights: dict) -> list:
+        """The nominal peripherals' timing with each board's flights (arrays)."""
+        out = []
+        for i, p in enumerate(self.sa.peripherals):
+            def flight(sig, p=p, i=i):
+                got = flights.get(sig)
+                if got is None:
+                    return getattr(p, sig)
+                if sig == "sclk":
+                    return {e: Flight(*got[(i, e)]) for e in ("rise", "fall")}
+                return Flight(*got[(i, None)]) if (i, None) in got else None
+            out.append(replace(p, **{sig: flight(sig) for sig in _FIELDS}))
+        return out
+
+    def _supply(self, u, rank, present, checks) -> bool:
+        """The devices' ``supply-range`` checks at each board's rails (the engine's own,
+        once per distinct set of shared factors); False where their number differs."""
+        if not self.n_supply:
+            return True
+        buses, inverse = self._variants(u, None)
+        j0 = len(self.index) - self.n_supply
+        table = np.empty((len(buses), self.n_supply))
+        held = []
+        for v, bus_v in enumerate(buses):
+            held.append(supply_checks(bus_v))
+            if len(held[v]) != self.n_supply:
+                return False
+            table[v] = [rank_margin(c) for c in held[v]]
+        rank[:, j0:] = table[inverse]
+        present[:, j0:] = True
+        for q in range(self.n_supply):
+            checks[j0 + q] = lambda i, q=q: held[inverse[i]][q]
+        return True
+
+    def _figures(self, terms, clock: float, n: int) -> dict:
+        """``max_clock`` and the lowest timing margins at each board, NaN for None."""
+        f_top = np.full(n, np.inf)
+        if terms:
+            f_top = np.min(term_clocks(terms), axis=0)
+        for _, f, _ in self.sa.f_limits:
+            f_top = np.minimum(f_top, f)
+        figs = {"max_clock": np.where(f_top > 0, f_top, np.nan)}
+        low = lowest_margins(terms, clock)
+        for fig, tid in MARGIN_FIGURES:
+            figs[fig] = np.broadcast_to(low.get(tid, np.nan), (n,))
+        return figs
+
+
+def _term_at(t: Term, i: int) -> Term:
+    """One board's term of a budget over arrays of boards: its own numbers (floats)."""
+    def at(x):
+        return float(x[i]) if isinstance(x, np.ndarray) else x
+    return replace(t, b=at(t.b), parts={k: at(x) for k, x in t.parts.items()})

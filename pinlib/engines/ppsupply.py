@@ -1,0 +1,46 @@
+"""The ``supply-range`` checks of a push-pull bus (SPI, GPIO): each device's rail against
+its part's supply range.
+
+Kept apart from :mod:`pinlib.engines.pushpull`, which re-exports both names, so that
+:mod:`pinlib.engines.ppcorners` (the corners of a bus's tolerances as arrays) can make
+them at each board's rails without importing the engine's entry point.
+"""
+
+from __future__ import annotations
+
+from pinlib.engines.opendrain.rules import supply_range_check
+from pinlib.engines.pushline import device_supply
+from pinlib.model.design import Bus
+from pinlib.model.result import Check
+
+__all__ = ["supply_rows", "supply_checks"]
+
+
+def supply_rows(bus: Bus) -> list[tuple]:
+    """Each device of the bus whose part states a supply range:
+    ``(device, rail, min, max, source)``, the rail the device runs from (its own, else
+    the bus's) and its part's range on that side. [V]"""
+    out, seen = [], set()
+    for d in bus.devices:
+        if d.ref in seen:
+            continue
+        seen.add(d.ref)
+        sup = d.part.supply_for((d.side or "a") if d.is_bridge else None)
+        if sup is None:
+            continue
+        why = sup.min.source or d.part.provenance.source or "part file"
+        out.append((d, device_supply(d, bus), float(sup.min.value), float(sup.max.value),
+                    f"{d.part_id} supply ({why})"))
+    return out
+
+
+def supply_checks(bus: Bus) -> list[Check]:
+    """Every device's rail against its part's supply range (the rule of the open-drain
+    engine: :func:`pinlib.engines.opendrain.rules.supply_range_check`, a datasheet range is a
+    hard limit, no warning band).  The rail's tolerance enters through the corners
+    :func:`pinlib.engines.pushpull.evaluate_bus` takes. [V]"""
+    out = []
+    for d, v, lo, hi, src in supply_rows(bus):
+        chk = supply_range_check(d.ref, v, v, lo, hi, lambda _low, src=src: src, ends=False)
+        out.append(chk)
+    return out
