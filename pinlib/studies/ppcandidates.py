@@ -25,6 +25,7 @@ from pinlib.engines import memo
 from pinlib.engines.dispatch import evaluate_bus
 from pinlib.engines.pushline.batchsolve import prefetch
 from pinlib.engines.pushpull import line_inputs
+from pinlib.engines.readout import summaries_only
 from pinlib.library.schema import Part
 from pinlib.model.design import Bus, Design
 
@@ -61,7 +62,7 @@ def evaluate_batched(design: Design, ref: str, parts: list[Part],
     """
     for start in range(0, len(parts), CHUNK):
         chunk = parts[start:start + CHUNK]
-        with memo.run_scope():
+        with memo.run_scope(), summaries_only():
             swapped, inputs = {}, []
             for p in chunk:
                 try:

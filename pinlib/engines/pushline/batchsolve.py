@@ -48,6 +48,7 @@ from pinlib.engines.pushline.line import (
 )
 from pinlib.engines.pushline.termination import auto_ideal, chosen_series_resistor
 from pinlib.engines.pushline.waves import edge_grid, is_settled, unit_edge_key
+from pinlib.engines.readout import explained
 from pinlib.model.result import LineResult
 from pinlib.physics import driver as drv
 from pinlib.physics import waveform as wf
@@ -209,12 +210,13 @@ def _requests(li: LineInputs, a: LineAnalysis, pullup: dict) -> list[tuple]:
     setting = li.line.series_resistor
     options = [0.0] if setting in ("auto", "none", None) else [float(setting)]
     if setting == "auto" and a.long:
-        # a long line: "auto" chooses Z0 - r_out (a short one only when a check fails)
+        # a long line: "auto" chooses Z0 - r_out (a short one only when a check fails);
+        # the edges without it only explain the choice, left out of summaries
         r_drv, ideal = auto_ideal(a)
         if ideal is not None:
             rs = chosen_series_resistor(a.z0, r_drv)
             if rs > 0:
-                options.append(rs)
+                options = [0.0, rs] if explained() else [rs]
     out = []
     for rs in options:
         for d in a.drivers:
