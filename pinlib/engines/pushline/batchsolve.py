@@ -145,7 +145,7 @@ def _solve(sections: list, batch: list, uses: dict) -> int:
             return 0
     if caught:
         return 0  # the engine solves these itself, so that its notes carry the warning
-    stored, rows, grids = 0, {}, {}
+    stored, rows, grids = 0, [], {}
     for j, (key, g, _, _) in enumerate(batch):
         unit = v[j, :g.t.size]  # views of the batch (the engine copies what it keeps)
         if is_settled(unit):
@@ -153,10 +153,8 @@ def _solve(sections: list, batch: list, uses: dict) -> int:
             grid = grids.setdefault(float(dt[j]), t[j].copy())
             memo.keep(key, (grid[:g.t.size], unit, True))
             stored += 1
-            rows.setdefault(float(dt[j]), []).extend(
-                (j, g.t.size, key, use) for use in uses.get(key, ()))
-    for j, got in ((r[0][0], r) for r in rows.values() if r):
-        store_figures(t[j], v, got)  # the figures of the rows of one step together
+            rows.extend((j, g.t.size, key, use) for use in uses.get(key, ()))
+    store_figures(t if dt.size > 1 else t[0], v, rows)  # every row on its own grid
     return stored
 
 
