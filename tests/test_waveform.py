@@ -160,6 +160,32 @@ def test_records_on_grids_of_their_own_in_one_batch():
     with pytest.raises(InputError):
         wf.edge_time(t[:, :-1], v, 3.3)  # a grid per row must match the samples
 
+
+def test_first_crossings_early_and_late_in_long_records():
+    # a batch's first crossings are sought in the records' heads first (metrics._HEAD):
+    # rows crossing in the head, after it, across its end and never read as each row
+    # alone (searched whole), to the last bit (derived from the definitions)
+    n = 3 * wf.metrics._HEAD
+    t = np.arange(n) * 1e-11
+    delays = [10, wf.metrics._HEAD - 3, wf.metrics._HEAD + 40, 2 * wf.metrics._HEAD, n]
+    v = np.array([3.3 * (1 - np.exp(-np.clip(t - d * 1e-11, 0, None) / 3e-10)
+                         * np.cos(np.clip(t - d * 1e-11, 0, None) * 1.2e10)) for d in delays])
+    n_valid = np.array([n, n, n - 100, n, n])
+    for k in (None, n_valid):
+        edge = wf.edge_time(t, v, 3.3, n_valid=k)
+        cross = wf.threshold_delay(t, v, np.array([0.2, 2.5, 2.5, 1.0, 1.0]), n_valid=k)
+        rc_ = wf.recrossings(t, v, 1.0, 2.3, n_valid=k)
+        for j in range(len(delays)):
+            m = n if k is None else k[j]
+            tj, vj = t[:m], v[j, :m]
+            for got, own in ((edge[j], wf.edge_time(tj, vj, 3.3)),
+                             (cross[j], wf.threshold_delay(tj, vj, [0.2, 2.5, 2.5, 1.0,
+                                                                   1.0][j])),
+                             (rc_.t_settled[j], wf.recrossings(tj, vj, 1.0, 2.3).t_settled)):
+                assert got == own or (np.isnan(got) and np.isnan(own))
+            assert rc_.entry[j] == wf.recrossings(tj, vj, 1.0, 2.3).entry
+    assert np.isfinite(edge[:4]).all() and np.isnan(edge[4])  # the cases are the ones meant
+
 def test_lumped_is_ramp_through_rc():
     t = grid(20e-9)
     w = wf.lumped_response(t, VDD, T_RAMP, 50.0, 20e-12)

@@ -25,6 +25,8 @@ __all__ = ["Recrossings", "edge_time", "threshold_delay", "overshoot", "undersho
 
 #: An overshoot within this fraction of the level is float rounding of a settled edge.
 _SETTLED_RTOL = 1e-12
+#: Samples searched first for a batch's first crossings (see :func:`_first_upward`).
+_HEAD = 512
 
 
 class Recrossings(NamedTuple):
@@ -99,9 +101,34 @@ def _first_upward(t: np.ndarray, u: np.ndarray, level, start=None, valid=None) -
     """First upward crossing of ``level`` by ``u`` along the last axis, at or after ``start``
     (and within ``valid``, a mask of the samples that count).
 
-    Returns the interpolated time (NaN where there is none) and the index of the first
-    sample at or above the level (0 where there is none).
+    Returns the interpolated time (NaN where there is none), the index of the first
+    sample at or above the level (0 where there is none) and whether there is one.
+
+    An edge's first crossings come early in its record: the first :data:`_HEAD` samples
+    are searched first, and only the records that do not cross there are searched
+    whole.  The first sample at or above the level in the head is the first in the
+    record, read from the same samples by the same arithmetic: the same numbers.
     """
+    n = u.shape[-1]
+    if u.ndim < 2 or n <= 2 * _HEAD:
+        return _first_upward_in(t, u, level, start, valid)
+    tc, k, found = _first_upward_in(t if t.ndim == 1 else t[..., :_HEAD], u[..., :_HEAD],
+                                    level, start, None if valid is None else valid[..., :_HEAD])
+    if found.all():
+        return tc, k, found
+    rest = ~found
+    level = np.broadcast_to(np.asarray(level, dtype=float), found.shape)[rest]
+    start = None if start is None else np.broadcast_to(start, found.shape)[rest]
+    valid = None if valid is None else np.broadcast_to(valid, u.shape)[rest]
+    got = _first_upward_in(t if t.ndim == 1 else np.broadcast_to(t, u.shape)[rest],
+                           u[rest], level, start, valid)
+    tc, k, found = tc.copy(), k.copy(), found.copy()
+    tc[rest], k[rest], found[rest] = got
+    return tc, k, found
+
+
+def _first_upward_in(t: np.ndarray, u: np.ndarray, level, start=None, valid=None) -> tuple:
+    """:func:`_first_upward` over every sample of ``u``."""
     level = np.asarray(level, dtype=float)[..., None]
     reached = u >= level
     if start is not None:
