@@ -131,6 +131,61 @@ def test_records_of_different_lengths_in_one_batch():
                           wf.edge_time(t, v, 3.3))
 
 
+
+def test_records_on_grids_of_their_own_in_one_batch():
+    # t of v's shape: each row's figures are those of its record on its own grid, to
+    # the last bit (derived from the definitions: the same samples, times and arithmetic)
+    steps, lengths = [1e-11, 1.3e-11, 0.7e-11, 1.1e-11], [400, 300, 400, 120]
+    t = np.arange(400)[None, :] * np.array(steps)[:, None]
+    v = np.array([3.3 * (1 - np.exp(-t[i] / (2e-10 + 1e-10 * i)) * np.cos(t[i] * 1.3e10))
+                  for i in range(len(steps))])
+    n = np.array(lengths)
+    got = {"edge": wf.edge_time(t, v, 3.3, n_valid=n),
+           "cross": wf.threshold_delay(t, v, np.full(4, 2.5), n_valid=n),
+           "fall": wf.threshold_delay(t, 3.3 - v, np.full(4, 0.8), edge="fall", n_valid=n)}
+    rc_ = wf.recrossings(t, v, 1.0, 2.3, n_valid=n)
+    for j, k in enumerate(lengths):
+        tj, vj = t[j, :k], v[j, :k]
+        own = {"edge": wf.edge_time(tj, vj, 3.3), "cross": wf.threshold_delay(tj, vj, 2.5),
+               "fall": wf.threshold_delay(tj, 3.3 - vj, 0.8, edge="fall")}
+        for name, x in own.items():
+            assert got[name][j] == x, name
+        r = wf.recrossings(tj, vj, 1.0, 2.3)
+        assert (rc_.entry[j], rc_.opposite[j]) == (r.entry, r.opposite)
+        assert rc_.t_settled[j] == r.t_settled or (np.isnan(rc_.t_settled[j])
+                                                    and np.isnan(r.t_settled))
+    assert rc_.entry.max() > 0  # it rings: the re-crossings are read, not all zero
+    # one shared axis reads otherwise (the test can fail)
+    assert not np.array_equal(wf.edge_time(t[0], v, 3.3, n_valid=n), got["edge"])
+    with pytest.raises(InputError):
+        wf.edge_time(t[:, :-1], v, 3.3)  # a grid per row must match the samples
+
+
+def test_first_crossings_early_and_late_in_long_records():
+    # a batch's first crossings are sought in the records' heads first (metrics._HEAD):
+    # rows crossing in the head, after it, across its end and never read as each row
+    # alone (searched whole), to the last bit (derived from the definitions)
+    n = 3 * wf.metrics._HEAD
+    t = np.arange(n) * 1e-11
+    delays = [10, wf.metrics._HEAD - 3, wf.metrics._HEAD + 40, 2 * wf.metrics._HEAD, n]
+    v = np.array([3.3 * (1 - np.exp(-np.clip(t - d * 1e-11, 0, None) / 3e-10)
+                         * np.cos(np.clip(t - d * 1e-11, 0, None) * 1.2e10)) for d in delays])
+    n_valid = np.array([n, n, n - 100, n, n])
+    for k in (None, n_valid):
+        edge = wf.edge_time(t, v, 3.3, n_valid=k)
+        cross = wf.threshold_delay(t, v, np.array([0.2, 2.5, 2.5, 1.0, 1.0]), n_valid=k)
+        rc_ = wf.recrossings(t, v, 1.0, 2.3, n_valid=k)
+        for j in range(len(delays)):
+            m = n if k is None else k[j]
+            tj, vj = t[:m], v[j, :m]
+            for got, own in ((edge[j], wf.edge_time(tj, vj, 3.3)),
+                             (cross[j], wf.threshold_delay(tj, vj, [0.2, 2.5, 2.5, 1.0,
+                                                                   1.0][j])),
+                             (rc_.t_settled[j], wf.recrossings(tj, vj, 1.0, 2.3).t_settled)):
+                assert got == own or (np.isnan(got) and np.isnan(own))
+            assert rc_.entry[j] == wf.recrossings(tj, vj, 1.0, 2.3).entry
+    assert np.isfinite(edge[:4]).all() and np.isnan(edge[4])  # the cases are the ones meant
+
 def test_lumped_is_ramp_through_rc():
     t = grid(20e-9)
     w = wf.lumped_response(t, VDD, T_RAMP, 50.0, 20e-12)

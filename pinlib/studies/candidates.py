@@ -34,6 +34,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from pinlib.core import messages as M
+from pinlib.core.collector import older_objects_aside
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.progress import progress_bar
 from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS
@@ -474,9 +475,10 @@ def rank_candidates(design: Design, ref: str, *, categories=None, progress=None)
     table.notes += [batched_note(bus) for bus in pp_buses]
     collected = {bus.id: od.collect(bus, design) for bus in fast_buses}
     # a unit is one part tried at one position (a part that stands at two places counts
-    # twice)
-    with progress_bar(len(parts) * len(places), desc=f"candidates for {ref}",
-                      unit="part-position", enabled=progress) as bar:
+    # twice); the library and design left out of the cyclic collector's walks meanwhile
+    with older_objects_aside(), progress_bar(len(parts) * len(places),
+                                             desc=f"candidates for {ref}",
+                                             unit="part-position", enabled=progress) as bar:
         for bus in fast_buses:
             table.add_fast_bus(bus, collected[bus.id], bar)
         if pp_buses:

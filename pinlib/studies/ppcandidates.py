@@ -10,7 +10,10 @@ is the waveform solves, most of a push-pull evaluation's time: the candidates ar
 sections and group of like time steps, each edge on its own grid) into a memo that
 lives for the chunk, with the figures read off them
 (:mod:`pinlib.engines.pushline.batchfigures`); the engine's analyses then take them
-from there.  Edges the prefetch leaves to the engine are solved one at a
+from there.  The engine runs for summaries only
+(:func:`pinlib.engines.readout.summaries_only`): what only explains a result (a long
+line's edges without the series resistor "auto" chose) is left out, every check and
+figure the same.  Edges the prefetch leaves to the engine are solved one at a
 time: a lumped line's (closed form), a record that had to be lengthened to settle, the
 boards at the corners of a bus's tolerances (each candidate's corners are found by its own
 results), and a series resistor "auto" chose on a short line.
@@ -25,6 +28,7 @@ from pinlib.engines import memo
 from pinlib.engines.dispatch import evaluate_bus
 from pinlib.engines.pushline.batchsolve import prefetch
 from pinlib.engines.pushpull import line_inputs
+from pinlib.engines.readout import summaries_only
 from pinlib.library.schema import Part
 from pinlib.model.design import Bus, Design
 
@@ -56,12 +60,14 @@ def evaluate_batched(design: Design, ref: str, parts: list[Part],
     Yields
     ------
     (Part, list of BusResult or PinlibError)
-        In the order of ``parts``: the results in the order of ``buses``, or the error
-        the design or an engine raised with the part in the position.
+        In the order of ``parts``: the results in the order of ``buses`` (made for
+        summaries only: every check's status and margin and every figure as the full
+        engine's, some explanations shorter), or the error the design or an engine
+        raised with the part in the position.
     """
     for start in range(0, len(parts), CHUNK):
         chunk = parts[start:start + CHUNK]
-        with memo.run_scope():
+        with memo.run_scope(), summaries_only():
             swapped, inputs = {}, []
             for p in chunk:
                 try:

@@ -9,8 +9,9 @@ simulate_edge`), its crossings of the receivers' thresholds (the flights,
 batch at once, with the same functions of :mod:`pinlib.physics.waveform` over the batch
 axis (``n_valid`` leaves each row's padding out), and keeps each under the memo key the
 engine asks for.  Every operation is the engine's, element by element, on the same
-samples (the record ``v_from + (v_to - v_from) * unit``), so the figures are the ones
-the engine would compute to the last bit; an edge the batch did not describe is
+samples (the record ``v_from + (v_to - v_from) * unit``) and the same grid (a batch of
+edges on different steps passes each row's own), so the figures are the ones the
+engine would compute to the last bit; an edge the batch did not describe is
 computed by the engine as before.
 """
 
@@ -49,7 +50,7 @@ def store_figures(t: np.ndarray, v: np.ndarray, rows: list) -> int:
     Parameters
     ----------
     t : numpy.ndarray
-        The batch's time grid, shape ``(n,)``. [s]
+        The batch's time grid, shape ``(n,)``, or one grid per row of ``v``. [s]
     v : numpy.ndarray
         Unit responses, shape ``(m, n)``. [1]
     rows : list of (int, int, tuple, EdgeUse)
@@ -63,7 +64,7 @@ def store_figures(t: np.ndarray, v: np.ndarray, rows: list) -> int:
     rows = [r for r in rows if r[3].v_to != r[3].v_from]  # no swing: the engine refuses
     if not rows:
         return 0
-    per = max(1, MAX_ELEMENTS // t.size)
+    per = max(1, MAX_ELEMENTS // t.shape[-1])
     for start in range(0, len(rows), per):
         _store(t, v, rows[start:start + per])
     return len(rows)
@@ -77,6 +78,7 @@ def _store(t: np.ndarray, v: np.ndarray, rows: list) -> None:
     vf = np.array([u.v_from for u in uses])
     vt = np.array([u.v_to for u in uses])
     rec = vf[:, None] + (vt - vf)[:, None] * v[idx]  # as simulate_edge makes each record
+    t = t[idx] if t.ndim > 1 else t  # each row's own grid, or the one they share
     t_edge = wf.edge_time(t, rec, vt, v_initial=vf, n_valid=n)
     over = wf.overshoot(rec, np.maximum(vf, vt), n_valid=n)
     under = wf.undershoot(rec, np.minimum(vf, vt), n_valid=n)
@@ -89,6 +91,11 @@ def _store(t: np.ndarray, v: np.ndarray, rows: list) -> None:
         _recrossings(t, rec, n, keys, uses, mine, edge)
 
 
+def _rows(t: np.ndarray, sel: list) -> np.ndarray:
+    """The time grids of rows ``sel``: the one shared axis, or each row's own."""
+    return t[sel] if t.ndim > 1 else t
+
+
 def _slots(mine: list, count) -> list[tuple[int, list[int]]]:
     """Per slot ``s``: the rows that ask for at least ``s + 1`` values."""
     most = max((count(i) for i in mine), default=0)
@@ -98,7 +105,7 @@ def _slots(mine: list, count) -> list[tuple[int, list[int]]]:
 def _crossings(t, rec, n, keys, uses, mine, edge) -> None:
     for s, sel in _slots(mine, lambda i: len(uses[i].levels)):
         levels = np.array([uses[i].levels[s] for i in sel])
-        got = wf.threshold_delay(t, rec[sel], levels, edge=edge, n_valid=n[sel])
+        got = wf.threshold_delay(_rows(t, sel), rec[sel], levels, edge=edge, n_valid=n[sel])
         for i, tc in zip(sel, got, strict=True):
             u = uses[i]
             memo.keep(crossing_key(keys[i], u.v_from, u.v_to, edge, u.levels[s]), float(tc))
@@ -108,7 +115,8 @@ def _recrossings(t, rec, n, keys, uses, mine, edge) -> None:
     for s, sel in _slots(mine, lambda i: len(uses[i].pairs)):
         v_il = np.array([uses[i].pairs[s][0] for i in sel])
         v_ih = np.array([uses[i].pairs[s][1] for i in sel])
-        got = wf.recrossings(t, rec[sel], v_il, v_ih, edge=edge, n_valid=n[sel])
+        got = wf.recrossings(_rows(t, sel), rec[sel], v_il, v_ih, edge=edge,
+                             n_valid=n[sel])
         for j, i in enumerate(sel):
             u = uses[i]
             memo.keep(recrossings_key(keys[i], u.v_from, u.v_to, edge, *u.pairs[s]),

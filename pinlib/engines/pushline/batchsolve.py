@@ -48,6 +48,7 @@ from pinlib.engines.pushline.line import (
 )
 from pinlib.engines.pushline.termination import auto_ideal, chosen_series_resistor
 from pinlib.engines.pushline.waves import edge_grid, is_settled, unit_edge_key
+from pinlib.engines.readout import explained
 from pinlib.model.result import LineResult
 from pinlib.physics import driver as drv
 from pinlib.physics import waveform as wf
@@ -144,7 +145,7 @@ def _solve(sections: list, batch: list, uses: dict) -> int:
             return 0
     if caught:
         return 0  # the engine solves these itself, so that its notes carry the warning
-    stored, rows, grids = 0, {}, {}
+    stored, rows, grids = 0, [], {}
     for j, (key, g, _, _) in enumerate(batch):
         unit = v[j, :g.t.size]  # views of the batch (the engine copies what it keeps)
         if is_settled(unit):
@@ -152,10 +153,8 @@ def _solve(sections: list, batch: list, uses: dict) -> int:
             grid = grids.setdefault(float(dt[j]), t[j].copy())
             memo.keep(key, (grid[:g.t.size], unit, True))
             stored += 1
-            rows.setdefault(float(dt[j]), []).extend(
-                (j, g.t.size, key, use) for use in uses.get(key, ()))
-    for j, got in ((r[0][0], r) for r in rows.values() if r):
-        store_figures(t[j], v, got)  # the figures of the rows of one step together
+            rows.extend((j, g.t.size, key, use) for use in uses.get(key, ()))
+    store_figures(t if dt.size > 1 else t[0], v, rows)  # every row on its own grid
     return stored
 
 
@@ -209,12 +208,13 @@ def _requests(li: LineInputs, a: LineAnalysis, pullup: dict) -> list[tuple]:
     setting = li.line.series_resistor
     options = [0.0] if setting in ("auto", "none", None) else [float(setting)]
     if setting == "auto" and a.long:
-        # a long line: "auto" chooses Z0 - r_out (a short one only when a check fails)
+        # a long line: "auto" chooses Z0 - r_out (a short one only when a check fails);
+        # the edges without it only explain the choice, left out of summaries
         r_drv, ideal = auto_ideal(a)
         if ideal is not None:
             rs = chosen_series_resistor(a.z0, r_drv)
             if rs > 0:
-                options.append(rs)
+                options = [0.0, rs] if explained() else [rs]
     out = []
     for rs in options:
         for d in a.drivers:

@@ -23,6 +23,7 @@ from pinlib.engines.pushline.sections import line_model, stretches_of
 from pinlib.engines.pushline.sichecks import _si_checks
 from pinlib.engines.pushline.termination import _solve_cases, _termination_check
 from pinlib.engines.pushline.waves import _TooManySteps
+from pinlib.engines.readout import explained
 from pinlib.model.design import Line
 from pinlib.model.result import Check, LineResult, check_max, rule_of_thumb
 from pinlib.physics import driver as drv
@@ -115,7 +116,7 @@ def _line_key(signal, line, drivers, loads, receivers, *rest) -> tuple | None:
     run), or None when an input is not hashable."""
     key = ("analyse_line", signal, line, tuple(_endpoint_key(e) for e in drivers),
            tuple(_endpoint_key(e) for e in loads), tuple(_endpoint_key(e) for e in receivers),
-           *rest)
+           *rest, explained())  # a summary's analysis is not a full one
     try:
         hash(key)
     except TypeError:

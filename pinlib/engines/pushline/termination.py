@@ -12,6 +12,7 @@ from pinlib.engines import memo
 from pinlib.engines.pushline.analysis import LineAnalysis, _cases, _figures_of, _fmt
 from pinlib.engines.pushline.rules import _TERMINATION_CURES, TERMINATION_RULE
 from pinlib.engines.pushline.sichecks import _si_checks
+from pinlib.engines.readout import explained
 from pinlib.model.result import Check
 
 
@@ -75,8 +76,11 @@ def _solve_cases(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
 def _auto_series(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
                  notes: list) -> None:
     """``series_resistor = "auto"``: none on a short line that passes what a series
-    resistor cures, else ``Z0 - r_out`` to the nearest E24 value."""
-    bare = _cases(a, 0.0, pullup)
+    resistor cures, else ``Z0 - r_out`` to the nearest E24 value.  A long line's cases
+    without the resistor only explain the choice (its check's comparison): a caller
+    reading summaries only (:func:`pinlib.engines.readout.summaries_only`) goes without
+    them."""
+    bare = _cases(a, 0.0, pullup) if explained() or not a.long else None
     # Only what a series resistor can cure decides (a slow edge or a level it cannot),
     # so the choice does not depend on the clock; a long line is terminated whatever
     # its checks say, so they are made for a short one only.
@@ -85,7 +89,7 @@ def _auto_series(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
         if c.id in _TERMINATION_CURES)
     r_drv, a.rs_ideal = auto_ideal(a)
     if clean or a.rs_ideal is None:
-        a.rs, a.cases = 0.0, bare
+        a.rs, a.cases = 0.0, _cases(a, 0.0, pullup) if bare is None else bare
         why = ("electrically short, and no overshoot, undershoot or ringing check "
                "fails without one"
                if clean else "no line impedance or push-pull driver")
@@ -99,7 +103,7 @@ def _auto_series(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
                      f"- r_out {_fmt(r_drv, 'Ω')} = {_fmt(a.rs_ideal, 'Ω')}, "
                      "nearest E24)")
     else:
-        a.cases = bare
+        a.cases = _cases(a, 0.0, pullup) if bare is None else bare
         notes.append(f"auto series resistor: none (the driver's {_fmt(r_drv, 'Ω')} "
                      f"already matches or exceeds Z0 {_fmt(a.z0, 'Ω')})")
 
@@ -125,13 +129,17 @@ def _termination_check(a: LineAnalysis) -> Check:
                "delay_to_edge_ratio": a.ratio, "with": with_f}
     if a.unterminated is not None:
         details["without"] = _figures_of(a.unterminated, a.receivers)
+    elif a.rs > 0:  # summaries only: the comparison was not worked out
+        details["without"] = None
     else:
         details["without"] = with_f
     wo = details["without"]
-    return Check(
-        "series-termination", "pass", a.rs, a.rs_ideal, "Ω", None, TERMINATION_RULE,
-        (f"auto: {_fmt(a.rs, 'Ω')}; overshoot {_fmt(wo['overshoot'], 'V')} -> "
-         f"{_fmt(with_f['overshoot'], 'V')}, rise {_fmt(wo['edge_rise_time'], 's')} -> "
-         f"{_fmt(with_f['edge_rise_time'], 's')}" if a.unterminated is not None else
-         "auto: no series resistor needed"),
-        details=details)
+    if a.unterminated is not None:
+        text = (f"auto: {_fmt(a.rs, 'Ω')}; overshoot {_fmt(wo['overshoot'], 'V')} -> "
+                f"{_fmt(with_f['overshoot'], 'V')}, rise {_fmt(wo['edge_rise_time'], 's')} "
+                f"-> {_fmt(with_f['edge_rise_time'], 's')}")
+    else:
+        text = ("auto: no series resistor needed" if a.rs <= 0 else
+                f"auto: {_fmt(a.rs, 'Ω')} (the edges without it not worked out)")
+    return Check("series-termination", "pass", a.rs, a.rs_ideal, "Ω", None,
+                 TERMINATION_RULE, text, details=details)

@@ -4,7 +4,10 @@ undershoot and threshold re-crossings.
 Waveform arrays hold time on their last axis; any leading axes are a batch of cases.
 A batch of records of different lengths can share one time axis padded to the longest:
 ``n_valid`` gives each record's own sample count, and the samples after it are left out
-(the figures of a row are then those of its own record alone, to the last bit).
+(the figures of a row are then those of its own record alone, to the last bit).  The
+functions that read times also take ``t`` of the samples' own shape, one grid per
+record (records on different steps in one call): each row's figures are then those
+of its record on its own grid, to the last bit.
 All quantities are SI.
 """
 
@@ -22,6 +25,8 @@ __all__ = ["Recrossings", "edge_time", "threshold_delay", "overshoot", "undersho
 
 #: An overshoot within this fraction of the level is float rounding of a settled edge.
 _SETTLED_RTOL = 1e-12
+#: Samples searched first for a batch's first crossings (see :func:`_first_upward`).
+_HEAD = 512
 
 
 class Recrossings(NamedTuple):
@@ -62,8 +67,12 @@ def _edge_sign(edge: str) -> float:
 
 
 def _time_axis(t, v) -> tuple[np.ndarray, np.ndarray]:
+    """``t`` and ``v`` as arrays: ``t`` one axis ``(n,)``, or one grid per record (the
+    shape of ``v``, at least two dimensions)."""
     t = np.asarray(t, dtype=float)
     v = np.asarray(v, dtype=float)
+    if t.ndim > 1 and t.shape == v.shape and t.shape[-1] >= 2:
+        return t, v
     if t.ndim != 1 or t.size < 2:
         raise InputError(M.TIME_NOT_1D, field="t",
                          value=t.shape, expected="shape (n,), n >= 2")
@@ -71,6 +80,14 @@ def _time_axis(t, v) -> tuple[np.ndarray, np.ndarray]:
         raise InputError(M.SAMPLES_NOT_ON_TIME_AXIS, field="v",
                          value=v.shape, expected=f"shape (..., {t.size})")
     return t, v
+
+
+def _at(t: np.ndarray, k: np.ndarray) -> np.ndarray:
+    """The times of samples ``k`` (one index per record): ``t[k]`` on one time axis, each
+    record's own on a grid per record."""
+    if t.ndim == 1:
+        return t[k]
+    return np.take_along_axis(t, k[..., None], axis=-1)[..., 0]
 
 
 def _valid(u: np.ndarray, n_valid) -> np.ndarray | None:
@@ -84,11 +101,36 @@ def _first_upward(t: np.ndarray, u: np.ndarray, level, start=None, valid=None) -
     """First upward crossing of ``level`` by ``u`` along the last axis, at or after ``start``
     (and within ``valid``, a mask of the samples that count).
 
-    Returns the interpolated time (NaN where there is none) and the index of the first
-    sample at or above the level (0 where there is none).
+    Returns the interpolated time (NaN where there is none), the index of the first
+    sample at or above the level (0 where there is none) and whether there is one.
+
+    An edge's first crossings come early in its record: the first :data:`_HEAD` samples
+    are searched first, and only the records that do not cross there are searched
+    whole.  The first sample at or above the level in the head is the first in the
+    record, read from the same samples by the same arithmetic: the same numbers.
     """
     if u.ndim == 1 and np.ndim(level) == 0:
         return _first_upward_1d(t, u, float(level), start, valid)
+    n = u.shape[-1]
+    if u.ndim < 2 or n <= 2 * _HEAD:
+        return _first_upward_in(t, u, level, start, valid)
+    tc, k, found = _first_upward_in(t if t.ndim == 1 else t[..., :_HEAD], u[..., :_HEAD],
+                                    level, start, None if valid is None else valid[..., :_HEAD])
+    if found.all():
+        return tc, k, found
+    rest = ~found
+    level = np.broadcast_to(np.asarray(level, dtype=float), found.shape)[rest]
+    start = None if start is None else np.broadcast_to(start, found.shape)[rest]
+    valid = None if valid is None else np.broadcast_to(valid, u.shape)[rest]
+    got = _first_upward_in(t if t.ndim == 1 else np.broadcast_to(t, u.shape)[rest],
+                           u[rest], level, start, valid)
+    tc, k, found = tc.copy(), k.copy(), found.copy()
+    tc[rest], k[rest], found[rest] = got
+    return tc, k, found
+
+
+def _first_upward_in(t: np.ndarray, u: np.ndarray, level, start=None, valid=None) -> tuple:
+    """:func:`_first_upward` over every sample of ``u``."""
     level = np.asarray(level, dtype=float)[..., None]
     reached = u >= level
     if start is not None:
@@ -100,8 +142,8 @@ def _first_upward(t: np.ndarray, u: np.ndarray, level, start=None, valid=None) -
     km1 = np.maximum(k - 1, 0)
     u1 = np.take_along_axis(u, k[..., None], axis=-1)[..., 0]
     u0 = np.take_along_axis(u, km1[..., None], axis=-1)[..., 0]
-    t1 = t[k]
-    t0 = t[km1]
+    t1 = _at(t, k)
+    t0 = _at(t, km1)
     # k > 0 means u0 < level <= u1, so u1 - u0 > 0; at k = 0 take the first sample.
     interpolate = k > 0
     du = np.where(interpolate, u1 - u0, 1.0)
@@ -134,7 +176,7 @@ def edge_time(t, v, v_final, lo=0.1, hi=0.9, *, v_initial=0.0, n_valid=None):
     Parameters
     ----------
     t : array_like
-        Sample times, shape ``(n,)``. [s]
+        Sample times, shape ``(n,)``, or one grid per record (the shape of ``v``). [s]
     v : array_like
         Samples, shape ``batch + (n,)``. [V]
     v_final : float or array_like
@@ -192,7 +234,7 @@ def threshold_delay(t, v, v_th, *, edge="rise", n_valid=None):
     Parameters
     ----------
     t : array_like
-        Sample times, shape ``(n,)``. [s]
+        Sample times, shape ``(n,)``, or one grid per record (the shape of ``v``). [s]
     v : array_like
         Samples, shape ``batch + (n,)``. [V]
     v_th : float or array_like
@@ -299,7 +341,7 @@ def recrossings(t, v, v_il, v_ih, *, edge="rise", n_valid=None):
     Parameters
     ----------
     t : array_like
-        Sample times, shape ``(n,)``. [s]
+        Sample times, shape ``(n,)``, or one grid per record (the shape of ``v``). [s]
     v : array_like
         Samples, shape ``batch + (n,)``. [V]
     v_il : float or array_like
@@ -371,7 +413,8 @@ def recrossings(t, v, v_il, v_ih, *, edge="rise", n_valid=None):
     u1 = np.take_along_axis(u, i1[..., None], axis=-1)[..., 0]
     du = np.where(has_rise_again, u1 - u0, 1.0)
     frac = np.where(has_rise_again, (th_entry[..., 0] - u0) / du, 0.0)
-    t_again = t[last] + frac * (t[i1] - t[last])
+    t_last = _at(t, last)
+    t_again = t_last + frac * (_at(t, i1) - t_last)
     t_settled = np.where(has_rise_again, t_again, t_first)
     if valid is None:
         ends_above = above_e[..., -1]
