@@ -168,6 +168,8 @@ NOT_ON_THE_CHECK_PATH = (
     # the formats are pinlib's own records: no validation library, no package metadata
     # scan, and their JSON Schema is built only when asked for
     "pydantic", "pydantic_core", "importlib.metadata", "email", "pinlib.core.recordschema",
+    # near-miss names are sought only for a misspelt one (pinlib.core.nearby)
+    "difflib",
 )
 
 

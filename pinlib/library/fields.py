@@ -10,13 +10,13 @@ converter one example of each unit of :data:`pinlib.core.quantity.UNITS`.
 
 from __future__ import annotations
 
-import difflib
 import functools
 import re
 import typing
 from dataclasses import dataclass
 
 from pinlib.core import messages as M
+from pinlib.core import nearby
 from pinlib.core.errors import LibraryError, PinlibError
 from pinlib.core.quantity import UNITS, Threshold
 from pinlib.core.records import Convert, Record
@@ -173,16 +173,12 @@ def unknown_field_help(root: type[Record], loc, format_name: str) -> tuple[str, 
     shown = ", ".join(names[:_FIELDS_SHOWN])
     if len(names) > _FIELDS_SHOWN:  # a message stays readable: the rest in the docs
         shown += M.MORE_FIELDS.format(n=len(names) - _FIELDS_SHOWN, format=format_name)
-    return (M.EXPECTED_FIELD_OF.format(format=format_name, fields=shown), _close(key, names))
+    return (M.EXPECTED_FIELD_OF.format(format=format_name, fields=shown),
+            nearby.closest_hint(key, names))
 
 
 #: How many field names an unknown-key message lists (the closest is named apart).
 _FIELDS_SHOWN = 10
-
-
-def _close(word: str, choices) -> str | None:
-    near = difflib.get_close_matches(word, list(choices), n=3, cutoff=0.5)
-    return ("closest: " + ", ".join(near)) if near else None
 
 
 def resolve_path(text: str) -> tuple[tuple[str, ...], ValueKind]:
@@ -214,7 +210,7 @@ def resolve_path(text: str) -> tuple[tuple[str, ...], ValueKind]:
             raise LibraryError(M.UNKNOWN_FIELD, field=".".join(path + [key]), value=text,
                                expected="one of " + ", ".join(
                                    n for n, f in fields.items() if value_kind(f)),
-                               hint=_close(key, fields))
+                               hint=nearby.closest_hint(key, fields))
         info = fields[key]
         path.append(key)
         kind = value_kind(info)

@@ -19,6 +19,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from pinlib.core import messages as M
+from pinlib.core import nearby
 from pinlib.core.errors import LibraryError, PinlibError
 from pinlib.core.records import Record, RecordError
 from pinlib.core.tomlfile import dotted as dotted_path
@@ -312,9 +313,7 @@ class Library:
         return len(self.parts)
 
     def closest(self, part_id: str, n: int = 3) -> list[str]:
-        import difflib  # only for an unknown id: not on a check's path
-
-        return difflib.get_close_matches(part_id, list(self.parts), n=n, cutoff=0.4)
+        return nearby.closest(part_id, self.parts, n=n, cutoff=0.4)
 
     def get(self, part_id: str, *, file=None, line=None, field=None) -> Part:
         """The part with this id.
@@ -524,12 +523,9 @@ def _merged_raw(pid: str, files: dict[str, PartFile], stack: list[str]):
                                hint=f"{cycle}; files: " + ", ".join(
                                    str(files[p].path) for p in chain if p in files))
         if parent not in files:
-            import difflib
-
-            near = difflib.get_close_matches(parent, list(files), n=3, cutoff=0.4)
             raise LibraryError(M.EXTENDS_UNKNOWN, file=str(pf.path),
                                line=pf.line(("extends",)), field="extends", value=parent,
-                               hint=("closest: " + ", ".join(near)) if near else None)
+                               hint=nearby.closest_hint(parent, files, cutoff=0.4))
         if len(chain) > MAX_EXTENDS_DEPTH:
             start = files[chain[len(stack)]]
             raise LibraryError(M.EXTENDS_TOO_DEEP.format(limit=MAX_EXTENDS_DEPTH),

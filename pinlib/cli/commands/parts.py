@@ -14,6 +14,7 @@ from pathlib import Path
 
 from pinlib.cli.commands import partsimport, partsusedby
 from pinlib.core import messages as M
+from pinlib.core import nearby
 from pinlib.core.errors import InputError
 
 __all__ = ["add_parser", "run"]
@@ -189,17 +190,11 @@ def _warn_problems(lib) -> None:
               file=sys.stderr)
 
 
-def _closest(word, choices) -> str | None:
-    import difflib
-
-    near = difflib.get_close_matches(word, list(choices), n=3, cutoff=0.4)
-    return ("closest: " + ", ".join(near)) if near else None
-
-
 def _choice(value, choices, field):
     if value is not None and value not in choices:
         raise InputError(M.NOT_ALLOWED_VALUE, field=field, value=value,
-                         expected="one of " + ", ".join(choices), hint=_closest(value, choices))
+                         expected="one of " + ", ".join(choices),
+                         hint=nearby.closest_hint(value, choices, cutoff=0.4))
 
 
 def _supplies(part) -> list[tuple[str, object]]:

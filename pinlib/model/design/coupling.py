@@ -10,11 +10,10 @@ signal is answered with the closest name the design has.
 
 from __future__ import annotations
 
-import difflib
 from dataclasses import dataclass
 
 from pinlib.core import messages as M
-from pinlib.core import protocols
+from pinlib.core import nearby, protocols
 from pinlib.model.design.objects import Bus, Geometry
 from pinlib.model.design.raw import RawCoupling, RawEdge, RawGeometry
 
@@ -78,7 +77,7 @@ class Coupling:
 
 
 def _closest_hint(word: str, names) -> str | None:
-    close = difflib.get_close_matches(word, list(names), n=1, cutoff=0.5)
+    close = nearby.closest(word, names, n=1)
     if close:
         return M.DID_YOU_MEAN.format(name=close[0])
     return ("defined: " + ", ".join(names)) if names else None
