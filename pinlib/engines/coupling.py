@@ -189,8 +189,9 @@ def solve_coupling(coupling: Coupling, results: dict[str, BusResult], design: De
     er = max(float(pair.er_eff_even), float(pair.er_eff_odd))
     # the shortest run whose delay covers one time step of the solver (crosstalk._time_grid)
     len_lo = max(1e-3, 1.01 * ramp / 50 * 299_792_458.0 / math.sqrt(er))
+    # only pass or fail is read: the solver's faster form for its one-step delays
     l_max = edge_of_passing(
-        lambda ls: [_passes(n, vic) for n in noise_batch(pair, ls, agg, vic)],
+        lambda ls: [_passes(n, vic) for n in noise_batch(pair, ls, agg, vic, bitwise=False)],
         len_lo, LENGTH_SEARCH_MAX, rel=SEARCH_REL, points=SEARCH_POINTS,
         passing_above=False)
     return CouplingWorkings(coupling, vic, agg, t, waves, memo[coupling.spacing], memo,

@@ -163,9 +163,12 @@ def _check_inputs(vic: Victim, agg: Aggressor) -> None:
 
 
 def victim_waves(line: CoupledLine, length, agg: Aggressor, vic: Victim,
-                 window: float = 150e-9):
+                 window: float = 150e-9, *, bitwise: bool = True):
     """The victim's waveforms at both ends for B pairs (``line``'s fields and ``length``
-    broadcast to (B,)), held low and held high, in one batched solve.
+    broadcast to (B,)), held low and held high, in one batched solve.  ``bitwise``
+    False: the solver's faster form for short delays, equal to about 1e-14 relative
+    (:func:`~pinlib.physics.coupledwave.coupled_waves_batch`), for a search that reads
+    only whether each pair passes.
 
     Returns ``(t, {(held, end): array (B, nt)})``. [s], [V]
     """
@@ -178,7 +181,8 @@ def victim_waves(line: CoupledLine, length, agg: Aggressor, vic: Victim,
     pair = CoupledLine(*(np.tile(np.broadcast_to(np.asarray(getattr(line, f), float),
                                                  (nb,)), 2)
                          for f in CoupledLine.__dataclass_fields__))
-    w = coupled_waves_batch(pair, np.tile(np.broadcast_to(length, (nb,)), 2), t, near, far)
+    w = coupled_waves_batch(pair, np.tile(np.broadcast_to(length, (nb,)), 2), t, near, far,
+                            bitwise=bitwise)
     out = {}
     for k, held in enumerate(("low", "high")):
         rows = slice(k * nb, (k + 1) * nb)
@@ -188,9 +192,10 @@ def victim_waves(line: CoupledLine, length, agg: Aggressor, vic: Victim,
 
 
 def noise_batch(line: CoupledLine, length, agg: Aggressor, vic: Victim,
-                window: float = 150e-9) -> list[dict]:
-    """:func:`victim_noise` for B pairs in one solve: a list of B such dicts."""
-    t, waves = victim_waves(line, length, agg, vic, window)
+                window: float = 150e-9, *, bitwise: bool = True) -> list[dict]:
+    """:func:`victim_noise` for B pairs in one solve: a list of B such dicts
+    (``bitwise`` as :func:`victim_waves`)."""
+    t, waves = victim_waves(line, length, agg, vic, window, bitwise=bitwise)
     return noise_of_waves(t, waves, vic)
 
 
@@ -337,7 +342,7 @@ def maximum_length(line: CoupledLine, agg: Aggressor, vic: Victim, lo: float, hi
                    *, rel=0.01) -> float | None:
     """The longest parallel run in [lo, hi] at which no check fails, on batched grids of
     lengths. None where even ``lo`` fails; ``hi`` where ``hi`` passes. [m]"""
-    def solve(lengths):
-        return [_passes(n, vic) for n in noise_batch(line, lengths, agg, vic)]
+    def solve(lengths):  # the shortest run's delay may span one step: the faster form
+        return [_passes(n, vic) for n in noise_batch(line, lengths, agg, vic, bitwise=False)]
 
     return edge_of_passing(solve, lo, hi, rel=rel, passing_above=False)

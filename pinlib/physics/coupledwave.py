@@ -31,6 +31,7 @@ from dataclasses import dataclass
 from typing import NamedTuple
 
 import numpy as np
+from numpy.lib.stride_tricks import as_strided
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
@@ -43,6 +44,12 @@ __all__ = ["EndLoads", "PairWaves", "coupled_waves", "coupled_waves_batch"]
 _T = np.array([[1.0, 1.0], [1.0, -1.0]]) / np.sqrt(2.0)
 #: Longest run of steps :func:`_march` gathers at once (its arrays are run x 4B values).
 _MAX_RUN = 256
+#: Most rows back (steps of the longer delay) a pair may read to be marched in blocks
+#: where the last bit need not be kept (a block's work grows with them; runs of
+#: :func:`_in_runs` are then at least this long).
+_BLOCK_ROWS = 16
+#: Steps of one block of :func:`_in_blocks`.
+_BLOCK = 64
 
 
 @dataclass(frozen=True)
@@ -126,13 +133,15 @@ def coupled_waves(line: CoupledLine, length, t, near: EndLoads, far: EndLoads) -
 
 
 def coupled_waves_batch(line: CoupledLine, length, t, near: EndLoads,
-                        far: EndLoads) -> PairWaves:
+                        far: EndLoads, *, bitwise: bool = True) -> PairWaves:
     """:func:`coupled_waves` for B pairs at once, on one time grid.
 
     ``line``'s fields and ``length`` broadcast to shape (B,); each :class:`EndLoads`
     gives ``r`` and ``c`` of shape (2,) or (B, 2) and ``v`` of shape (2,), (2, nt),
     (B, 2) or (B, 2, nt).  Returns :class:`PairWaves` whose ``near`` and ``far`` have
-    shape (B, 2, nt).
+    shape (B, 2, nt).  ``bitwise`` False lets pairs of short delays march in blocks:
+    the same voltages to about 1e-14 relative rather than to the last bit, several
+    times faster where one pair's delay spans only a step or two (:func:`_march`).
     """
     length = np.atleast_1d(positive(length, "length", "[m]")).astype(float)
     t = np.asarray(t, dtype=float)
@@ -146,7 +155,7 @@ def coupled_waves_batch(line: CoupledLine, length, t, near: EndLoads,
         raise InputError(M.PARAMETER_OUT_OF_RANGE.format(name="t"), field="t", value=dt,
                          expected=f"a uniform step > 0 and <= the shorter modal delay "
                                   f"{tau.min():.4g} s")
-    return _march(z, tau, t, dt, near, far)
+    return _march(z, tau, t, dt, near, far, bitwise)
 
 
 class _Setup(NamedTuple):
@@ -169,7 +178,7 @@ class _Setup(NamedTuple):
     frac: np.ndarray
 
 
-def _march(z, tau, t, dt, near: EndLoads, far: EndLoads) -> PairWaves:
+def _march(z, tau, t, dt, near: EndLoads, far: EndLoads, bitwise: bool = True) -> PairWaves:
     """Step the modal characteristics of B pairs through the grid (see the module).
 
     Both ends are stepped together (axis 0: near, far).  The history of the waves
@@ -181,11 +190,54 @@ def _march(z, tau, t, dt, near: EndLoads, far: EndLoads) -> PairWaves:
     Where every delay spans two steps or more, the steps go in runs
     (:func:`_in_runs`), else one by one (:func:`_one_by_one`).  Either way each value
     is the same arithmetic, in the same order and through the same kernels, as a step
-    written out on its own.
+    written out on its own.  With ``bitwise`` False the pairs whose delays span at most
+    :data:`_BLOCK_ROWS` steps are marched apart, in blocks (:func:`_in_blocks`: the
+    same values to about 1e-14 relative, not to the last bit), and the rest in runs.
     """
     nb, nt = z.shape[0], t.size
-    g0, c0, vs0 = _end(near, nt, "near", nb)
-    g1, c1, vs1 = _end(far, nt, "far", nb)
+    ends = _end(near, nt, "near", nb), _end(far, nt, "far", nb)
+    lag = tau / dt
+    groups = _groups(lag, bitwise)
+    out = None if len(groups) == 1 and not groups[0][1] else np.empty((nt, 2, nb, 2))
+    for rows, blocks in groups:
+        s, v_dc = _setup(z[rows], lag[rows], dt, *(x[rows] for e in ends for x in e))
+        if blocks:
+            out[:, :, rows] = _in_blocks(s, lag[rows], v_dc, nt)
+            continue
+        v_ends = np.empty((nt + 1,) + v_dc.shape)
+        v_ends[0] = v_dc                               # the state before the edge
+        run = _run_length(lag[rows])
+        if run > 1:
+            _in_runs(s, v_ends, run)
+        else:
+            _one_by_one(s, v_ends)
+        if out is None:
+            out = v_ends[1:]
+        else:
+            out[:, :, rows] = v_ends[1:]
+    return PairWaves(t, np.moveaxis(out[:, 0], 0, -1), np.moveaxis(out[:, 1], 0, -1))
+
+
+def _groups(lag, bitwise: bool):
+    """The pairs marched together: ``(rows, in blocks)``; all in one march where
+    ``bitwise``, else those reading at most :data:`_BLOCK_ROWS` rows back in blocks, a
+    group for each power of two of rows (a block's work grows with its rows), and the
+    rest in runs."""
+    if bitwise:
+        return [(slice(None), False)]
+    reach = np.ceil(lag.max(axis=1)).astype(int)
+    short = reach <= _BLOCK_ROWS
+    bins = np.ceil(np.log2(np.maximum(reach, 2))).astype(int)
+    out = [(np.flatnonzero(short & (bins == b)), True) for b in np.unique(bins[short])]
+    if not short.all():
+        out.append((np.flatnonzero(~short), False))
+    return out
+
+
+def _setup(z, lag, dt, g0, c0, vs0, g1, c1, vs1):
+    """The :class:`_Setup` of B pairs (their terminations from :func:`_end`) and the
+    DC state of their ends, shape (2, B, 2)."""
+    nb, nt = z.shape[0], vs0.shape[-1]
     g, k = np.stack([g0, g1]), np.stack([c0, c1]) / dt                   # (2, B, 2)
     zc = np.einsum("ij,bj,jk->bik", _T, z, _T)                            # (B, 2, 2)
     solve = np.linalg.inv(np.eye(2) + zc[None] * (g + k)[:, :, None, :])  # (2, B, 2, 2)
@@ -194,7 +246,6 @@ def _march(z, tau, t, dt, near: EndLoads, far: EndLoads) -> PairWaves:
     zs = solve @ zc[None]
     v_dc, i_dc = _dc(g0, vs0[:, :, 0], g1, vs1[:, :, 0])
     init = np.stack([v_dc @ _T + z * (i_dc @ _T), v_dc @ _T - z * (i_dc @ _T)])
-    lag = tau / dt
     width = 4 * nb
     pad = int(np.ceil(lag.max())) + 2
     h = np.zeros((pad + nt) * width)
@@ -204,18 +255,9 @@ def _march(z, tau, t, dt, near: EndLoads, far: EndLoads) -> PairWaves:
     # each end reads the waves the other end sent
     other = np.concatenate([np.arange(2 * nb, width), np.arange(2 * nb)])
     base = (np.tile(((back + pad) * width).ravel(), 2) + other).reshape(2, nb, 2)
-    setup = _Setup(z, solve @ _T, np.einsum("ebij,nebj->nebi", zs, src),
-                   zs * k[:, :, None, :], g + k, k, src, h.reshape(pad + nt, 2, nb, 2),
-                   pad, base, 1.0 - frac, frac)
-    v_ends = np.empty((nt + 1, 2, nb, 2))
-    v_ends[0] = v_dc                                   # the state before the edge
-    run = _run_length(lag)
-    if run > 1:
-        _in_runs(setup, v_ends, run)
-    else:
-        _one_by_one(setup, v_ends)
-    v_ends = v_ends[1:]
-    return PairWaves(t, np.moveaxis(v_ends[:, 0], 0, -1), np.moveaxis(v_ends[:, 1], 0, -1))
+    s = _Setup(z, solve @ _T, np.einsum("ebij,nebj->nebi", zs, src), zs * k[:, :, None, :],
+               g + k, k, src, h.reshape(pad + nt, 2, nb, 2), pad, base, 1.0 - frac, frac)
+    return s, np.broadcast_to(v_dc, (2, nb, 2))
 
 
 def _run_length(lag) -> int:
@@ -270,3 +312,126 @@ def _one_by_one(s: _Setup, v_ends: np.ndarray) -> None:
 
 def _matvec(m, x):
     return np.matmul(m, x[..., None])[..., 0]
+
+
+def _in_blocks(s: _Setup, lag, v_dc, nt: int) -> np.ndarray:
+    """``v_ends[1:]`` of G pairs, shape (nt, 2, G, 2), marched :data:`_BLOCK` steps at a
+    time by the march's state-space form (:func:`_one_step`): a block's voltages and
+    the waves it leaves for the next are its start's state times one matrix per pair
+    (:func:`_block_gain`), plus its inputs' share (:func:`_input_share`).  One matrix
+    product a block, whatever the delays; its size grows with the rows a pair reads
+    back, so only short delays come here.
+    """
+    a, b_in = _one_step(s, lag)
+    g, size = a.shape[0], a.shape[1]
+    gain, taps_v, taps_w = _block_gain(a, b_in)
+    nblk = -(-nt // _BLOCK)
+    u = np.empty((g, nblk * _BLOCK, 8))
+    u[:, :nt, :4] = np.moveaxis(s.s_n, 2, 0).reshape(g, nt, 4)
+    u[:, :nt, 4:] = np.moveaxis(s.src, 2, 0).reshape(g, nt, 4)
+    u[:, nt:] = u[:, nt - 1:nt]                         # steps past the grid, cut below
+    share = _input_share(taps_v, taps_w, u.reshape(g, nblk, _BLOCK, 8))
+    out = np.empty((nblk, g, 4 * _BLOCK + size - 4))
+    state = np.concatenate([np.moveaxis(v_dc, 1, 0).reshape(g, 4),
+                            np.tile(np.moveaxis(s.rows[0], 1, 0).reshape(g, 4),
+                                    (size - 4) // 4)], axis=1)
+    for i in range(nblk):
+        np.matmul(gain, state[..., None], out=out[i, :, :, None])
+        out[i] += share[i]
+        state = out[i, :, 4 * _BLOCK - 4:]
+    v = out[:, :, :4 * _BLOCK].reshape(nblk, g, _BLOCK, 2, 2)
+    return np.moveaxis(v, 2, 1).reshape(nblk * _BLOCK, g, 2, 2)[:nt].swapaxes(1, 2)
+
+
+def _block_gain(a, b_in):
+    """What a block of K = :data:`_BLOCK` steps makes of its start's state and of its
+    inputs.  ``gain`` (G, 4K + 4R, 4 + 4R): its K voltages (rows of ``a**(j + 1)``) and
+    the state after it less its last voltage (``a**K``); ``taps_v[d]``, ``taps_w[d]``
+    (G, K, ., 8): an input's share in the voltage d steps later and in that state."""
+    g, size = a.shape[0], a.shape[1]
+    rows = np.empty((_BLOCK + 1, g, 4, size))
+    rows[0] = np.eye(4, size)
+    for j in range(_BLOCK):
+        np.matmul(rows[j], a, out=rows[j + 1])
+    power = a
+    for _ in range(_BLOCK.bit_length() - 1):           # a**K, K a power of two
+        power = power @ power
+    gain = np.concatenate([np.moveaxis(rows[1:], 0, 1).reshape(g, 4 * _BLOCK, size),
+                           power[:, 4:]], axis=1)
+    taps = np.empty((_BLOCK, g, size, 8))
+    taps[0] = b_in
+    for d in range(1, _BLOCK):
+        np.matmul(a, taps[d - 1], out=taps[d])
+    taps = np.moveaxis(taps, 0, 1)
+    return gain, taps[:, :, :4], taps[:, :, 4:]
+
+
+def _input_share(taps_v, taps_w, u):
+    """Each block's outputs from its own inputs, (nblk, G, 4K + 4R): the voltage j steps
+    in takes ``sum over i <= j of taps_v[j - i] @ u[i]``, the state after the block
+    ``sum over i of taps_w[K - 1 - i] @ u[i]``; a block whose inputs stay constant takes
+    running sums of the taps times that constant."""
+    g, nblk, kb, _ = u.shape
+    const = np.all(u == u[:, :, :1], axis=(0, 2, 3))
+    out = np.empty((nblk, g, 4 * kb + taps_w.shape[2]))
+    if const.any():
+        total = np.concatenate([np.cumsum(taps_v, axis=1).reshape(g, 4 * kb, 8),
+                                taps_w.sum(axis=1)], axis=1)
+        out[const] = np.moveaxis(total @ np.moveaxis(u[:, const, 0], 1, 2), 2, 0)
+    var = np.flatnonzero(~const)
+    if var.size:
+        # the inputs before each step, latest last: row j holds u[j - K + 1 .. j] (zero
+        # before the block), a strided view of the block after K - 1 rows of zeros
+        pre = np.concatenate([np.zeros((g, var.size, kb - 1, 8)), u[:, var]], axis=2)
+        window = as_strided(pre, (g, var.size, kb, kb * 8), pre.strides[:2] + (64, 8))
+        v_part = window @ np.swapaxes(taps_v[:, ::-1], 2, 3).reshape(g, 1, kb * 8, 4)
+        w_part = (taps_w[:, ::-1].transpose(0, 2, 1, 3).reshape(g, 1, -1, kb * 8)
+                  @ u[:, var].reshape(g, var.size, kb * 8, 1))[..., 0]
+        out[var] = np.moveaxis(np.concatenate([v_part.reshape(g, var.size, 4 * kb),
+                                               w_part], axis=2), 1, 0)
+    return out
+
+
+def _one_step(s: _Setup, lag):
+    """One step of the march as a linear map of G pairs: ``state' = a @ state + b_in @
+    u``, the state ``[v (end, conductor), then the waves sent (end, mode) R rows back
+    to one]`` (4 + 4R values), ``u = [S[n], src[n]]`` (the sources' two terms), R the
+    most rows back a pair reads.  Returns ``a`` (G, 4 + 4R, 4 + 4R) and ``b_in``
+    (G, 4 + 4R, 8)."""
+    g = s.z.shape[0]
+    back = np.ceil(lag).astype(int)                    # rows back of the first tap
+    reach = int(back.max())
+    size = 4 + 4 * reach
+    cases = np.arange(g)
+    # the incoming waves a (end e, mode j): the other end's waves at two taps
+    read = np.zeros((g, 4, size))
+    for e in range(2):
+        for j in range(2):
+            col = 4 + 4 * (reach - back[:, j]) + 2 * (1 - e) + j
+            read[cases, 2 * e + j, col] = s.keep[e, :, j]
+            two = back[:, j] > 1                       # a lag of one step: weight 0
+            read[cases[two], 2 * e + j, col[two] + 4] = s.frac[e, two, j]
+    v_x = _blockdiag(s.m) @ read
+    v_x[:, :, :4] += _blockdiag(s.p)
+    v_u = np.eye(4, 8)
+    gk, k = (np.moveaxis(x, 1, 0).reshape(g, 4, 1) for x in (s.gk, s.k))
+    i_x = -gk * v_x
+    i_x[:, :, :4] += k * np.eye(4)
+    i_u = -gk * v_u + np.eye(4, 8, 4)
+    tt = np.kron(np.eye(2), _T)
+    zz = np.tile(s.z, 2)[:, :, None]                   # mode j of each end
+    a = np.zeros((g, size, size))
+    a[:, :4] = v_x
+    a[:, 4:size - 4, 8:] = np.eye(size - 8)            # the older waves move down a row
+    a[:, size - 4:] = tt @ v_x + zz * (tt @ i_x)
+    b_in = np.zeros((g, size, 8))
+    b_in[:, :4] = v_u
+    b_in[:, size - 4:] = tt @ v_u + zz * (tt @ i_u)
+    return a, b_in
+
+
+def _blockdiag(x):
+    """(2, G, 2, 2) -> (G, 4, 4): each pair's two ends' matrices on the diagonal."""
+    out = np.zeros((x.shape[1], 4, 4))
+    out[:, :2, :2], out[:, 2:, 2:] = x[0], x[1]
+    return out
