@@ -49,7 +49,7 @@ _MAX_RUN = 256
 #: :func:`_in_runs` are then at least this long).
 _BLOCK_ROWS = 16
 #: Steps of one block of :func:`_in_blocks`.
-_BLOCK = 64
+_BLOCK = 32
 
 
 @dataclass(frozen=True)
@@ -208,7 +208,7 @@ def _march(z, tau, t, dt, near: EndLoads, far: EndLoads, bitwise: bool = True) -
         v_ends[0] = v_dc                               # the state before the edge
         run = _run_length(lag[rows])
         if run > 1:
-            _in_runs(s, v_ends, run)
+            (_in_runs if bitwise else _in_closed_runs)(s, v_ends, run)
         else:
             _one_by_one(s, v_ends)
         if out is None:
@@ -228,7 +228,9 @@ def _groups(lag, bitwise: bool):
     reach = np.ceil(lag.max(axis=1)).astype(int)
     short = reach <= _BLOCK_ROWS
     bins = np.ceil(np.log2(np.maximum(reach, 2))).astype(int)
-    out = [(np.flatnonzero(short & (bins == b)), True) for b in np.unique(bins[short])]
+    # (np.unique would import numpy.ma, some milliseconds the command does not need)
+    out = [(np.flatnonzero(short & (bins == b)), True)
+           for b in sorted(set(bins[short].tolist()))]
     if not short.all():
         out.append((np.flatnonzero(~short), False))
     return out
@@ -277,10 +279,11 @@ def _in_runs(s: _Setup, v_ends: np.ndarray, run: int) -> None:
     """
     nt = v_ends.shape[0] - 1
     width = s.base.size
+    flat = s.rows.reshape(-1)
+    steps = np.arange(nt) * width
     for n0 in range(0, nt, run):
         n1 = min(n0 + run, nt)
-        idx = s.base + (np.arange(n0, n1) * width)[:, None, None, None]
-        flat = s.rows.reshape(-1)
+        idx = s.base + steps[n0:n1, None, None, None]
         a = s.keep * flat[idx] + s.frac * flat[idx + width]             # (K, 2, B, 2)
         u = np.matmul(s.m, a[..., None])[..., 0] + s.s_n[n0:n1]
         for n in range(n0, n1):
@@ -289,6 +292,68 @@ def _in_runs(s: _Setup, v_ends: np.ndarray, run: int) -> None:
         v, vp = v_ends[n0 + 1:n1 + 1], v_ends[n0:n1]
         i = s.src[n0:n1] - s.gk * v + s.k * vp
         s.rows[s.pad + n0:s.pad + n1] = v @ _T + s.z * (i @ _T)
+
+
+def _in_closed_runs(s: _Setup, v_ends: np.ndarray, run: int) -> None:
+    """:func:`_in_runs` with each run's voltages in one product (to rounding, not to the
+    bit): ``[v[0], the K + 1 rows of waves the run reads]`` times one matrix per end
+    and pair (:func:`_run_matrix`), plus the sources' share, formed for every run
+    before the march."""
+    nt = v_ends.shape[0] - 1
+    nb, width = s.base.shape[1], s.base.size
+    mat, share = _run_matrix(s, run, nt)
+    flat = s.rows.reshape(-1)
+    # where each end reads row q of a run (q = 0..K) of each mode: (2, B, K + 1, 2)
+    reads = (s.base[:, :, None, :] + (np.arange(run + 1) * width)[:, None]).reshape(
+        2, nb, -1)
+    buf = np.empty((2, nb, 2 * run + 4, 1))
+    for r, n0 in enumerate(range(0, nt, run)):
+        n1 = min(n0 + run, nt)
+        kn = n1 - n0
+        buf[:, :, :2, 0] = v_ends[n0]
+        buf[:, :, 2:, 0] = flat[reads + n0 * width]
+        x = mat[:, :, :2 * kn] @ buf
+        x[..., 0] += share[:, :, r, :2 * kn]
+        v_ends[n0 + 1:n1 + 1] = np.moveaxis(x.reshape(2, nb, kn, 2), 2, 0)
+        v, vp = v_ends[n0 + 1:n1 + 1], v_ends[n0:n1]
+        i = s.src[n0:n1] - s.gk * v + s.k * vp
+        s.rows[s.pad + n0:s.pad + n1] = v @ _T + s.z * (i @ _T)
+
+
+def _run_matrix(s: _Setup, run: int, nt: int):
+    """The matrix of :func:`_in_closed_runs` (2, B, 2K, 2K + 4) and each run's share of
+    the sources (2, B, runs, 2K): ``v[j] = P**j v[0] + sum over i < j of P**(j - 1 -
+    i) (M a[i] + S[i])`` with ``a[i] = keep row[i] + frac row[i + 1]``."""
+    powers = np.empty((run + 1,) + s.p.shape)
+    powers[0] = np.eye(2)
+    for j in range(run):
+        np.matmul(s.p, powers[j], out=powers[j + 1])
+    gap = np.arange(run)[:, None] - np.arange(run)[None, :]          # j - i
+    lower = np.where((gap >= 0)[:, :, None, None, None, None],
+                     powers[np.clip(gap, 0, run)], 0.0)    # (K_j, K_i, 2, B, 2, 2)
+    lower = lower.transpose(2, 3, 0, 1, 4, 5)              # (2, B, K_j, K_i, 2, 2)
+    nb = lower.shape[1]
+    on_a = (lower.reshape(2, nb, -1, 2) @ s.m).reshape(lower.shape).transpose(
+        0, 1, 2, 4, 3, 5)
+    on_u = lower.transpose(0, 1, 2, 4, 3, 5)               # (2, B, K_j, 2, K_i, 2)
+    mat = np.zeros((2, s.p.shape[1], run, 2, run + 2, 2))
+    mat[:, :, :, :, 0] = np.moveaxis(powers[1:], 0, 2)     # v[0]
+    mat[:, :, :, :, 1:-1] += on_a * s.keep[:, :, None, None, None, :]
+    mat[:, :, :, :, 2:] += on_a * s.frac[:, :, None, None, None, :]
+    nrun = -(-nt // run)
+    s_n = np.concatenate([s.s_n, np.repeat(s.s_n[-1:], nrun * run - nt, axis=0)])
+    s_n = s_n.reshape(nrun, run, 2, nb, 2)
+    lower = on_u.reshape(2, nb, 2 * run, 2 * run)
+    share = np.empty((2, nb, nrun, 2 * run))
+    const = np.all(s_n == s_n[:, :1], axis=(1, 2, 3, 4))
+    if const.any():                                        # constant sources: summed
+        total = on_u.sum(axis=4)                           # (2, B, K_j, 2, 2)
+        share[:, :, const] = (total.reshape(2, nb, 2 * run, 2) @ np.ascontiguousarray(
+            s_n[const, 0].transpose(1, 2, 3, 0))).swapaxes(2, 3)
+    if not const.all():
+        var = s_n[~const].transpose(2, 3, 1, 4, 0).reshape(2, nb, 2 * run, -1)
+        share[:, :, ~const] = (lower @ var).swapaxes(2, 3)
+    return mat.reshape(2, nb, 2 * run, 2 * run + 4), share
 
 
 def _one_by_one(s: _Setup, v_ends: np.ndarray) -> None:
