@@ -200,7 +200,8 @@ def _march(z, tau, t, dt, near: EndLoads, far: EndLoads, bitwise: bool = True) -
     groups = _groups(lag, bitwise)
     out = None if len(groups) == 1 and not groups[0][1] else np.empty((nt, 2, nb, 2))
     for rows, blocks in groups:
-        s, v_dc = _setup(z[rows], lag[rows], dt, *(x[rows] for e in ends for x in e))
+        s, v_dc = _setup(z[rows], lag[rows], dt, *(x[rows] for e in ends for x in e),
+                         record=not blocks)
         if blocks:
             out[:, :, rows] = _in_blocks(s, lag[rows], v_dc, nt)
             continue
@@ -236,24 +237,34 @@ def _groups(lag, bitwise: bool):
     return out
 
 
-def _setup(z, lag, dt, g0, c0, vs0, g1, c1, vs1):
+def _setup(z, lag, dt, g0, c0, vs0, g1, c1, vs1, record: bool = True):
     """The :class:`_Setup` of B pairs (their terminations from :func:`_end`) and the
-    DC state of their ends, shape (2, B, 2)."""
+    DC state of their ends, shape (2, B, 2).  Without ``record`` (the blocks), the
+    record holds the DC waves only, ``s_n`` is the matrix ``S[n] = s_n @ src[n]`` and
+    ``src`` ends one step after the sources' last move (they stay at its last row).
+    """
     nb, nt = z.shape[0], vs0.shape[-1]
     g, k = np.stack([g0, g1]), np.stack([c0, c1]) / dt                   # (2, B, 2)
     zc = np.einsum("ij,bj,jk->bik", _T, z, _T)                            # (B, 2, 2)
     solve = np.linalg.inv(np.eye(2) + zc[None] * (g + k)[:, :, None, :])  # (2, B, 2, 2)
-    src = np.moveaxis(g[..., None] * np.stack([vs0, vs1]), -1, 0)        # (nt, 2, B, 2)
+    if not record:  # the blocks read the sources up to where they stop moving
+        moves = [np.flatnonzero(np.any(x[..., 1:] != x[..., :-1], axis=(0, 1)))
+                 for x in (vs0, vs1)]
+        nt = min(nt, 2 + max(int(m.max(initial=-1)) for m in moves))
+    src = np.moveaxis(g[..., None] * np.stack([vs0[..., :nt], vs1[..., :nt]]), -1, 0)
     # v = solve (T a + zc (src + k vp)) = M a + S[n] + P vp
     zs = solve @ zc[None]
     v_dc, i_dc = _dc(g0, vs0[:, :, 0], g1, vs1[:, :, 0])
     init = np.stack([v_dc @ _T + z * (i_dc @ _T), v_dc @ _T - z * (i_dc @ _T)])
     width = 4 * nb
     pad = int(np.ceil(lag.max())) + 2
-    h = np.zeros((pad + nt) * width)
-    h[:pad * width] = np.tile(init.ravel(), pad)
     back = np.floor(-lag).astype(int)                  # row n + back, weight 1 - frac
     frac = np.tile((-lag - back).ravel(), 2).reshape(2, nb, 2)
+    if not record:
+        return _Setup(z, solve @ _T, zs, zs * k[:, :, None, :], g + k, k, src, init[None],
+                      0, None, 1.0 - frac, frac), np.broadcast_to(v_dc, (2, nb, 2))
+    h = np.zeros((pad + nt) * width)
+    h[:pad * width] = np.tile(init.ravel(), pad)
     # each end reads the waves the other end sent
     other = np.concatenate([np.arange(2 * nb, width), np.arange(2 * nb)])
     base = (np.tile(((back + pad) * width).ravel(), 2) + other).reshape(2, nb, 2)
@@ -382,27 +393,33 @@ def _matvec(m, x):
 def _in_blocks(s: _Setup, lag, v_dc, nt: int) -> np.ndarray:
     """``v_ends[1:]`` of G pairs, shape (nt, 2, G, 2), marched :data:`_BLOCK` steps at a
     time by the march's state-space form (:func:`_one_step`): a block's voltages and
-    the waves it leaves for the next are its start's state times one matrix per pair
-    (:func:`_block_gain`), plus its inputs' share (:func:`_input_share`).  One matrix
-    product a block, whatever the delays; its size grows with the rows a pair reads
-    back, so only short delays come here.
+    the state it leaves (its last voltage and R rows of waves) are its start's state
+    times one matrix per pair (:func:`_block_gain`), plus its inputs' share
+    (:func:`_input_share`).  One matrix product a block, whatever the delays; its size
+    grows with the rows a pair reads back, so only short delays come here.
+    ``s`` is a :func:`_setup` without its record.
     """
     a, b_in = _one_step(s, lag)
     g, size = a.shape[0], a.shape[1]
-    gain, taps_v, taps_w = _block_gain(a, b_in)
+    gain, taps, keep = _block_gain(a, b_in)
     nblk = -(-nt // _BLOCK)
-    u = np.empty((g, nblk * _BLOCK, 8))
-    u[:, :nt, :4] = np.moveaxis(s.s_n, 2, 0).reshape(g, nt, 4)
-    u[:, :nt, 4:] = np.moveaxis(s.src, 2, 0).reshape(g, nt, 4)
-    u[:, nt:] = u[:, nt - 1:nt]                         # steps past the grid, cut below
-    share = _input_share(taps_v, taps_w, u.reshape(g, nblk, _BLOCK, 8))
-    out = np.empty((nblk, g, 4 * _BLOCK + size - 4))
+    moved = np.flatnonzero(np.any(s.src[1:] != s.src[:-1], axis=(1, 2, 3)))
+    nvar = 0 if moved.size == 0 else -(-(int(moved[-1]) + 2) // _BLOCK)
+    # the inputs [S[n], src[n]] of the blocks whose sources move, and the constant after
+    src = s.src[np.minimum(np.arange(nvar * _BLOCK), len(s.src) - 1)]
+    u = np.concatenate([np.moveaxis(x, 2, 0).reshape(g, nvar, _BLOCK, 4)
+                        for x in ((s.s_n @ src[..., None])[..., 0], src)], axis=-1)
+    last = np.concatenate([np.moveaxis(x, 1, 0).reshape(g, 4)
+                           for x in ((s.s_n @ s.src[-1, ..., None])[..., 0], s.src[-1])],
+                          axis=-1)
+    moving, steady = _input_share(taps, u, last, keep)
+    out = np.empty((nblk, g, keep.size))
     state = np.concatenate([np.moveaxis(v_dc, 1, 0).reshape(g, 4),
                             np.tile(np.moveaxis(s.rows[0], 1, 0).reshape(g, 4),
                                     (size - 4) // 4)], axis=1)
     for i in range(nblk):
         np.matmul(gain, state[..., None], out=out[i, :, :, None])
-        out[i] += share[i]
+        out[i] += moving[i] if i < nvar else steady
         state = out[i, :, 4 * _BLOCK - 4:]
     v = out[:, :, :4 * _BLOCK].reshape(nblk, g, _BLOCK, 2, 2)
     return np.moveaxis(v, 2, 1).reshape(nblk * _BLOCK, g, 2, 2)[:nt].swapaxes(1, 2)
@@ -410,51 +427,40 @@ def _in_blocks(s: _Setup, lag, v_dc, nt: int) -> np.ndarray:
 
 def _block_gain(a, b_in):
     """What a block of K = :data:`_BLOCK` steps makes of its start's state and of its
-    inputs.  ``gain`` (G, 4K + 4R, 4 + 4R): its K voltages (rows of ``a**(j + 1)``) and
-    the state after it less its last voltage (``a**K``); ``taps_v[d]``, ``taps_w[d]``
-    (G, K, ., 8): an input's share in the voltage d steps later and in that state."""
+    inputs.  Row ``j`` of ``rows`` (K + 1, G, 8, 4 + 4R) is ``a**j`` read at the
+    newest voltage and waves, so step j of a block gives ``rows[j + 1] @ state``
+    plus ``taps[j - i] @ u[i]`` (taps (G, K, 8, 8)) of its inputs.  Of those K x 8
+    values the block keeps (``keep``) its K voltages and the R newest rows of waves:
+    ``gain`` (G, 4K + 4R, 4 + 4R)."""
     g, size = a.shape[0], a.shape[1]
-    rows = np.empty((_BLOCK + 1, g, 4, size))
-    rows[0] = np.eye(4, size)
+    reach = (size - 4) // 4
+    rows = np.empty((_BLOCK + 1, g, 8, size))
+    rows[0] = 0.0
+    rows[0, :, :4, :4] = np.eye(4)
+    rows[0, :, 4:, size - 4:] = np.eye(4)
     for j in range(_BLOCK):
         np.matmul(rows[j], a, out=rows[j + 1])
-    power = a
-    for _ in range(_BLOCK.bit_length() - 1):           # a**K, K a power of two
-        power = power @ power
-    gain = np.concatenate([np.moveaxis(rows[1:], 0, 1).reshape(g, 4 * _BLOCK, size),
-                           power[:, 4:]], axis=1)
-    taps = np.empty((_BLOCK, g, size, 8))
-    taps[0] = b_in
-    for d in range(1, _BLOCK):
-        np.matmul(a, taps[d - 1], out=taps[d])
-    taps = np.moveaxis(taps, 0, 1)
-    return gain, taps[:, :, :4], taps[:, :, 4:]
+    taps = np.moveaxis(rows[:_BLOCK] @ b_in, 0, 1)                  # (G, K, 8, 8)
+    keep = np.concatenate([(8 * np.arange(_BLOCK)[:, None] + np.arange(4)).ravel(),
+                           (8 * np.arange(_BLOCK - reach, _BLOCK)[:, None]
+                            + np.arange(4, 8)).ravel()])
+    gain = np.moveaxis(rows[1:], 0, 1).reshape(g, 8 * _BLOCK, size)[:, keep]
+    return gain, taps, keep
 
 
-def _input_share(taps_v, taps_w, u):
-    """Each block's outputs from its own inputs, (nblk, G, 4K + 4R): the voltage j steps
-    in takes ``sum over i <= j of taps_v[j - i] @ u[i]``, the state after the block
-    ``sum over i of taps_w[K - 1 - i] @ u[i]``; a block whose inputs stay constant takes
-    running sums of the taps times that constant."""
-    g, nblk, kb, _ = u.shape
-    const = np.all(u == u[:, :, :1], axis=(0, 2, 3))
-    out = np.empty((nblk, g, 4 * kb + taps_w.shape[2]))
-    if const.any():
-        total = np.concatenate([np.cumsum(taps_v, axis=1).reshape(g, 4 * kb, 8),
-                                taps_w.sum(axis=1)], axis=1)
-        out[const] = np.moveaxis(total @ np.moveaxis(u[:, const, 0], 1, 2), 2, 0)
-    var = np.flatnonzero(~const)
-    if var.size:
-        # the inputs before each step, latest last: row j holds u[j - K + 1 .. j] (zero
-        # before the block), a strided view of the block after K - 1 rows of zeros
-        pre = np.concatenate([np.zeros((g, var.size, kb - 1, 8)), u[:, var]], axis=2)
-        window = as_strided(pre, (g, var.size, kb, kb * 8), pre.strides[:2] + (64, 8))
-        v_part = window @ np.swapaxes(taps_v[:, ::-1], 2, 3).reshape(g, 1, kb * 8, 4)
-        w_part = (taps_w[:, ::-1].transpose(0, 2, 1, 3).reshape(g, 1, -1, kb * 8)
-                  @ u[:, var].reshape(g, var.size, kb * 8, 1))[..., 0]
-        out[var] = np.moveaxis(np.concatenate([v_part.reshape(g, var.size, 4 * kb),
-                                               w_part], axis=2), 1, 0)
-    return out
+def _input_share(taps, u, last, keep):
+    """The blocks' outputs (``keep`` of their K x 8) from their own inputs: of each block
+    whose sources move (u: (G, nvar, K, 8)), step j takes ``sum over i <= j of
+    taps[j - i] @ u[i]``, (nvar, G, 4K + 4R); of every later block, whose inputs stay
+    at ``last`` (G, 8), the running sums of the taps times it, (G, 4K + 4R)."""
+    g, nvar, kb, _ = u.shape
+    steady = (np.cumsum(taps, axis=1) @ last[:, None, :, None]).reshape(g, -1)[:, keep]
+    # the inputs before each step, latest last: row j holds u[j - K + 1 .. j] (zero
+    # before the block), a strided view of the block after K - 1 rows of zeros
+    pre = np.concatenate([np.zeros((g, nvar, kb - 1, 8)), u], axis=2)
+    window = as_strided(pre, (g, nvar, kb, kb * 8), pre.strides[:2] + (64, 8))
+    moving = window @ np.swapaxes(taps[:, ::-1], 2, 3).reshape(g, 1, kb * 8, 8)
+    return np.moveaxis(moving.reshape(g, nvar, -1)[:, :, keep], 1, 0), steady
 
 
 def _one_step(s: _Setup, lag):
