@@ -308,12 +308,29 @@ def test_waves_in_blocks_equal_the_step_by_step_march(monkeypatch, seed, lags, n
     assert np.ptp(steps.far[:, 1], axis=-1).min() > 1e-6  # the victims move
 
 
-def test_blocks_take_only_the_short_delays():
+def test_blocks_take_only_the_short_delays_of_pairs_not_bitwise():
     from pinlib.physics import coupledwave
 
     lag = np.array([[1.0, 1.2], [3.5, 3.7], [15.9, 16.0], [16.1, 17.0], [40.0, 41.0]])
     groups = coupledwave._groups(lag, bitwise=False)
-    in_blocks = sorted(int(i) for rows, blocks in groups if blocks for i in rows)
-    in_runs = [rows for rows, blocks in groups if not blocks]
-    assert in_blocks == [0, 1, 2] and len(in_runs) == 1 and list(in_runs[0]) == [3, 4]
-    assert coupledwave._groups(lag, bitwise=True) == [(slice(None), False)]
+    in_blocks = sorted(int(i) for rows, how in groups if how == "blocks" for i in rows)
+    closed = [list(rows) for rows, how in groups if how == "closed"]
+    assert in_blocks == [0, 1, 2] and closed == [[3, 4]]
+    assert coupledwave._groups(lag, bitwise=True) == [(slice(None), "steps")]
+    groups = coupledwave._groups(lag, bitwise=[True, False, False, True, False])
+    assert [(list(rows), how) for rows, how in groups] == [
+        ([0, 3], "steps"), ([1], "blocks"), ([2], "blocks"), ([4], "closed")]
+
+
+def test_a_bitwise_pair_is_its_step_by_step_march_beside_faster_ones():
+    from pinlib.physics.coupledwave import coupled_waves_batch
+
+    rng = np.random.default_rng(5)
+    pair, lengths, t, near, far = _random_pairs(rng, [1.0, 3.2, 9.5, 30.0], 300, True)
+    alone = coupled_waves_batch(pair, lengths, t, near, far)
+    mixed = coupled_waves_batch(pair, lengths, t, near, far,
+                                bitwise=[False, True, False, True])
+    # derived from the method: each pair's arithmetic is its own, whatever the batch
+    for got, want in ((mixed.near, alone.near), (mixed.far, alone.far)):
+        assert np.array_equal(got[[1, 3]], want[[1, 3]])
+        assert np.all(np.abs(got - want) <= 1e-12 * np.abs(want).max(axis=-1, keepdims=True))

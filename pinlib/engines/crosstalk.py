@@ -165,8 +165,9 @@ def _check_inputs(vic: Victim, agg: Aggressor) -> None:
 def victim_waves(line: CoupledLine, length, agg: Aggressor, vic: Victim,
                  window: float = 150e-9, *, bitwise: bool = True):
     """The victim's waveforms at both ends for B pairs (``line``'s fields and ``length``
-    broadcast to (B,)), held low and held high, in one batched solve.  ``bitwise``
-    False: the solver's faster form for short delays, equal to about 1e-14 relative
+    broadcast to (B,)), held low and held high, in one batched solve.  ``bitwise`` (a
+    bool or one per pair) False: the solver's faster form, equal to about 1e-13 of the
+    waveform's scale rather than to the last bit
     (:func:`~pinlib.physics.coupledwave.coupled_waves_batch`), for a search that reads
     only whether each pair passes.
 
@@ -182,7 +183,7 @@ def victim_waves(line: CoupledLine, length, agg: Aggressor, vic: Victim,
                                                  (nb,)), 2)
                          for f in CoupledLine.__dataclass_fields__))
     w = coupled_waves_batch(pair, np.tile(np.broadcast_to(length, (nb,)), 2), t, near, far,
-                            bitwise=bitwise)
+                            bitwise=np.tile(np.broadcast_to(bitwise, (nb,)), 2))
     out = {}
     for k, held in enumerate(("low", "high")):
         rows = slice(k * nb, (k + 1) * nb)

@@ -133,15 +133,15 @@ def coupled_waves(line: CoupledLine, length, t, near: EndLoads, far: EndLoads) -
 
 
 def coupled_waves_batch(line: CoupledLine, length, t, near: EndLoads,
-                        far: EndLoads, *, bitwise: bool = True) -> PairWaves:
+                        far: EndLoads, *, bitwise=True) -> PairWaves:
     """:func:`coupled_waves` for B pairs at once, on one time grid.
 
     ``line``'s fields and ``length`` broadcast to shape (B,); each :class:`EndLoads`
     gives ``r`` and ``c`` of shape (2,) or (B, 2) and ``v`` of shape (2,), (2, nt),
     (B, 2) or (B, 2, nt).  Returns :class:`PairWaves` whose ``near`` and ``far`` have
-    shape (B, 2, nt).  ``bitwise`` False lets pairs of short delays march in blocks:
-    the same voltages to about 1e-14 relative rather than to the last bit, several
-    times faster where one pair's delay spans only a step or two (:func:`_march`).
+    shape (B, 2, nt).  ``bitwise`` (a bool or one per pair) False lets pairs march
+    faster (:func:`_march`): the same voltages to about 1e-13 of their scale rather
+    than to the last bit, several times faster where a delay spans only a few steps.
     """
     length = np.atleast_1d(positive(length, "length", "[m]")).astype(float)
     t = np.asarray(t, dtype=float)
@@ -178,7 +178,7 @@ class _Setup(NamedTuple):
     frac: np.ndarray
 
 
-def _march(z, tau, t, dt, near: EndLoads, far: EndLoads, bitwise: bool = True) -> PairWaves:
+def _march(z, tau, t, dt, near: EndLoads, far: EndLoads, bitwise=True) -> PairWaves:
     """Step the modal characteristics of B pairs through the grid (see the module).
 
     Both ends are stepped together (axis 0: near, far).  The history of the waves
@@ -190,26 +190,27 @@ def _march(z, tau, t, dt, near: EndLoads, far: EndLoads, bitwise: bool = True) -
     Where every delay spans two steps or more, the steps go in runs
     (:func:`_in_runs`), else one by one (:func:`_one_by_one`).  Either way each value
     is the same arithmetic, in the same order and through the same kernels, as a step
-    written out on its own.  With ``bitwise`` False the pairs whose delays span at most
-    :data:`_BLOCK_ROWS` steps are marched apart, in blocks (:func:`_in_blocks`: the
-    same values to about 1e-14 relative, not to the last bit), and the rest in runs.
+    written out on its own.  Pairs not ``bitwise`` are marched apart (:func:`_groups`):
+    those whose delays span at most :data:`_BLOCK_ROWS` steps in blocks
+    (:func:`_in_blocks`), the rest in closed runs (:func:`_in_closed_runs`), the same
+    values to about 1e-13 of their scale, not to the last bit.
     """
     nb, nt = z.shape[0], t.size
     ends = _end(near, nt, "near", nb), _end(far, nt, "far", nb)
     lag = tau / dt
     groups = _groups(lag, bitwise)
-    out = None if len(groups) == 1 and not groups[0][1] else np.empty((nt, 2, nb, 2))
-    for rows, blocks in groups:
+    out = None if len(groups) == 1 and groups[0][1] == "steps" else np.empty((nt, 2, nb, 2))
+    for rows, how in groups:
         s, v_dc = _setup(z[rows], lag[rows], dt, *(x[rows] for e in ends for x in e),
-                         record=not blocks)
-        if blocks:
+                         record=how != "blocks")
+        if how == "blocks":
             out[:, :, rows] = _in_blocks(s, lag[rows], v_dc, nt)
             continue
         v_ends = np.empty((nt + 1,) + v_dc.shape)
         v_ends[0] = v_dc                               # the state before the edge
         run = _run_length(lag[rows])
         if run > 1:
-            (_in_runs if bitwise else _in_closed_runs)(s, v_ends, run)
+            (_in_runs if how == "steps" else _in_closed_runs)(s, v_ends, run)
         else:
             _one_by_one(s, v_ends)
         if out is None:
@@ -219,21 +220,24 @@ def _march(z, tau, t, dt, near: EndLoads, far: EndLoads, bitwise: bool = True) -
     return PairWaves(t, np.moveaxis(out[:, 0], 0, -1), np.moveaxis(out[:, 1], 0, -1))
 
 
-def _groups(lag, bitwise: bool):
-    """The pairs marched together: ``(rows, in blocks)``; all in one march where
-    ``bitwise``, else those reading at most :data:`_BLOCK_ROWS` rows back in blocks, a
-    group for each power of two of rows (a block's work grows with its rows), and the
-    rest in runs."""
-    if bitwise:
-        return [(slice(None), False)]
+def _groups(lag, bitwise) -> list:
+    """The pairs marched together and how: ``(rows, "steps" | "blocks" | "closed")``.
+    Those ``bitwise`` (a bool or one per pair) in one march by the steps' own
+    arithmetic; of the others, those reading at most :data:`_BLOCK_ROWS` rows back in
+    blocks, a group for each power of two of rows (a block's work grows with its rows),
+    and the rest in closed runs."""
+    exact = np.broadcast_to(np.asarray(bitwise, bool), lag.shape[:1])
+    if exact.all():
+        return [(slice(None), "steps")]
+    out = [(np.flatnonzero(exact), "steps")] if exact.any() else []
     reach = np.ceil(lag.max(axis=1)).astype(int)
-    short = reach <= _BLOCK_ROWS
+    short = (reach <= _BLOCK_ROWS) & ~exact
     bins = np.ceil(np.log2(np.maximum(reach, 2))).astype(int)
     # (np.unique would import numpy.ma, some milliseconds the command does not need)
-    out = [(np.flatnonzero(short & (bins == b)), True)
-           for b in sorted(set(bins[short].tolist()))]
-    if not short.all():
-        out.append((np.flatnonzero(~short), False))
+    out += [(np.flatnonzero(short & (bins == b)), "blocks")
+            for b in sorted(set(bins[short].tolist()))]
+    if (long := ~short & ~exact).any():
+        out.append((np.flatnonzero(long), "closed"))
     return out
 
 
