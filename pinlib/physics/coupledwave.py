@@ -57,7 +57,7 @@ _MAX_RUN = 256
 #: where the last bit need not be kept (a block's work grows with them; runs of
 #: :func:`_in_runs` are then at least this long).
 _BLOCK_ROWS = 16
-#: Steps of one block of :func:`_in_blocks`.
+#: Steps of one block of :func:`_in_blocks` (at least :data:`_BLOCK_ROWS`).
 _BLOCK = 32
 
 
@@ -471,9 +471,9 @@ def _input_share(taps, u, last, keep):
     # the inputs before each step, latest last: row j holds u[j - K + 1 .. j] (zero
     # before the block), a strided view of the block after K - 1 rows of zeros
     pre = np.concatenate([np.zeros((g, nvar, kb - 1, 8)), u], axis=2)
-    window = as_strided(pre, (g, nvar, kb, kb * 8), pre.strides[:2] + (64, 8))
+    window = as_strided(pre, (g, nvar, kb, kb * 8), pre.strides[:2] + pre.strides[2:])
     moving = window @ np.swapaxes(taps[:, ::-1], 2, 3).reshape(g, 1, kb * 8, 8)
-    return np.moveaxis(moving.reshape(g, nvar, -1)[:, :, keep], 1, 0), steady
+    return np.moveaxis(moving.reshape(g, nvar, kb * 8)[:, :, keep], 1, 0), steady
 
 
 def _one_step(s: _Setup, lag):
