@@ -139,19 +139,28 @@ def _stacked(vic: Victim, agg: Aggressor, t, ramp, nb: int):
     return ends
 
 
-def _excursion(t, v, threshold, held: str) -> EndNoise:
-    dev = v - v[0]
-    best = None
+def _excursions(t, rows, threshold, held: str) -> list[EndNoise]:
+    """The worst excursion of each waveform of ``rows`` (B, nt) held ``held``, over the
+    rising edge's noise and the falling edge's (its sign turned), all rows at once."""
+    dt = t[1] - t[0]
+    start = rows[:, :1]
+    dev = rows - start
+    edges = []
     for sign in (1.0, -1.0):  # the rising edge's noise, and the falling edge's
-        level = v[0] + sign * dev
+        level = start + sign * dev
         beyond = level > threshold if held == "low" else level < threshold
-        dt = t[1] - t[0]
-        worst = level.max() if held == "low" else level.min()
-        cand = EndNoise(float(worst), float(np.count_nonzero(beyond) * dt), bool(beyond[-1]))
-        if best is None or (cand.level > best.level if held == "low"
-                            else cand.level < best.level):
-            best = cand
-    return best
+        worst = level.max(axis=1) if held == "low" else level.min(axis=1)
+        edges.append((worst, np.count_nonzero(beyond, axis=1) * dt, beyond[:, -1]))
+    out = []
+    for b in range(rows.shape[0]):
+        best = None
+        for worst, time_beyond, still in edges:
+            cand = EndNoise(float(worst[b]), float(time_beyond[b]), bool(still[b]))
+            if best is None or (cand.level > best.level if held == "low"
+                                else cand.level < best.level):
+                best = cand
+        out.append(best)
+    return out
 
 
 def _check_inputs(vic: Victim, agg: Aggressor) -> None:
@@ -208,8 +217,8 @@ def noise_of_waves(t, waves: dict, vic: Victim) -> list[dict]:
         thr = (vic.vil if held == "low" else vic.vih).get(end)
         if thr is None:
             continue
-        for b in range(nb):
-            out[b][(held, end)] = _excursion(t, rows[b], thr, held)
+        for b, noise in enumerate(_excursions(t, rows, thr, held)):
+            out[b][(held, end)] = noise
     return out
 
 
