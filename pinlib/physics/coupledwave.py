@@ -209,9 +209,12 @@ def _march(z, tau, t, dt, near: EndLoads, far: EndLoads, bitwise=True) -> PairWa
     lag = tau / dt
     groups = _groups(lag, bitwise)
     out = None if len(groups) == 1 and groups[0][1] == "steps" else np.empty((nt, 2, nb, 2))
+    # the blocks read the sources only up to one step after their last move
+    span = _moving_steps(ends[0][2], ends[1][2]) if out is not None else nt
     for rows, how in groups:
-        s, v_dc = _setup(z[rows], lag[rows], dt, *(x[rows] for e in ends for x in e),
-                         record=how != "blocks")
+        s, v_dc = _setup(z[rows], lag[rows], dt,
+                         *((x[..., :span] if how == "blocks" and x.ndim == 3 else x)[rows]
+                           for e in ends for x in e), record=how != "blocks")
         if how == "blocks":
             out[:, :, rows] = _in_blocks(s, lag[rows], v_dc, nt)
             continue
@@ -252,19 +255,15 @@ def _groups(lag, bitwise) -> list:
 
 def _setup(z, lag, dt, g0, c0, vs0, g1, c1, vs1, record: bool = True):
     """The :class:`_Setup` of B pairs (their terminations from :func:`_end`) and the
-    DC state of their ends, shape (2, B, 2).  Without ``record`` (the blocks), the
-    record holds the DC waves only, ``s_n`` is the matrix ``S[n] = s_n @ src[n]`` and
-    ``src`` ends one step after the sources' last move (they stay at its last row).
+    DC state of their ends, shape (2, B, 2).  Without ``record`` (the blocks, given
+    the sources up to one step after their last move: :func:`_moving_steps`), the
+    record holds the DC waves only and ``s_n`` is the matrix ``S[n] = s_n @ src[n]``.
     """
     nb, nt = z.shape[0], vs0.shape[-1]
     g, k = np.stack([g0, g1]), np.stack([c0, c1]) / dt                   # (2, B, 2)
     zc = np.einsum("ij,bj,jk->bik", _T, z, _T)                            # (B, 2, 2)
     solve = np.linalg.inv(np.eye(2) + zc[None] * (g + k)[:, :, None, :])  # (2, B, 2, 2)
-    if not record:  # the blocks read the sources up to where they stop moving
-        moves = [np.flatnonzero(np.any(x[..., 1:] != x[..., :-1], axis=(0, 1)))
-                 for x in (vs0, vs1)]
-        nt = min(nt, 2 + max(int(m.max(initial=-1)) for m in moves))
-    src = np.moveaxis(g[..., None] * np.stack([vs0[..., :nt], vs1[..., :nt]]), -1, 0)
+    src = np.moveaxis(g[..., None] * np.stack([vs0, vs1]), -1, 0)        # (nt, 2, B, 2)
     # v = solve (T a + zc (src + k vp)) = M a + S[n] + P vp
     zs = solve @ zc[None]
     v_dc, i_dc = _dc(g0, vs0[:, :, 0], g1, vs1[:, :, 0])
@@ -284,6 +283,13 @@ def _setup(z, lag, dt, g0, c0, vs0, g1, c1, vs1, record: bool = True):
     s = _Setup(z, solve @ _T, np.einsum("ebij,nebj->nebi", zs, src), zs * k[:, :, None, :],
                g + k, k, src, h.reshape(pad + nt, 2, nb, 2), pad, base, 1.0 - frac, frac)
     return s, np.broadcast_to(v_dc, (2, nb, 2))
+
+
+def _moving_steps(vs0, vs1) -> int:
+    """Steps up to one after the sources' last move (at least one): every later step
+    repeats the last of them."""
+    moves = [np.flatnonzero(np.any(x[..., 1:] != x[..., :-1], axis=(0, 1))) for x in (vs0, vs1)]
+    return min(vs0.shape[-1], 2 + max(int(m.max(initial=-1)) for m in moves))
 
 
 def _run_length(lag) -> int:
