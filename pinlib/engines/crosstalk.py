@@ -172,7 +172,7 @@ def _check_inputs(vic: Victim, agg: Aggressor) -> None:
 
 
 def victim_waves(line: CoupledLine, length, agg: Aggressor, vic: Victim,
-                 window: float = 150e-9, *, bitwise: bool = True):
+                 window: float = 150e-9, *, bitwise: bool | list = True):
     """The victim's waveforms at both ends for B pairs (``line``'s fields and ``length``
     broadcast to (B,)), held low and held high, in one batched solve.  ``bitwise`` (a
     bool or one per pair) False: the solver's faster form, equal to about 1e-13 of the
@@ -202,7 +202,7 @@ def victim_waves(line: CoupledLine, length, agg: Aggressor, vic: Victim,
 
 
 def noise_batch(line: CoupledLine, length, agg: Aggressor, vic: Victim,
-                window: float = 150e-9, *, bitwise: bool = True) -> list[dict]:
+                window: float = 150e-9, *, bitwise: bool | list = True) -> list[dict]:
     """:func:`victim_noise` for B pairs in one solve: a list of B such dicts
     (``bitwise`` as :func:`victim_waves`)."""
     t, waves = victim_waves(line, length, agg, vic, window, bitwise=bitwise)
