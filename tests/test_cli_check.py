@@ -170,6 +170,7 @@ NOT_ON_THE_CHECK_PATH = (
     "pydantic", "pydantic_core", "importlib.metadata", "email", "pinlib.core.recordschema",
     # near-miss names are sought only for a misspelt one (pinlib.core.nearby)
     "difflib",
+    "numpy.ma",  # np.unique imports it: some milliseconds of a fresh check
 )
 
 

@@ -16,6 +16,7 @@ from pinlib.physics.coupled import (
     crosstalk,
     from_modes,
 )
+from pinlib.physics.coupledwave import EndLoads
 from pinlib.physics.lines import C0, ETA0, microstrip, stripline
 from pinlib.physics.lines.stripline_models import _k_ratio
 
@@ -252,3 +253,101 @@ def test_waves_in_runs_equal_the_step_by_step_march(monkeypatch, max_run):
     # derived from the method: a run is the same arithmetic as its steps, bit for bit
     assert np.array_equal(runs.near, steps.near) and np.array_equal(runs.far, steps.far)
     assert np.ptp(runs.far[:, 1]) > 1e-3  # the victim moves: the comparison has substance
+
+
+def _random_pairs(rng, lags_wanted, nt, slow_source):
+    """Pairs whose shorter modal delay is ``lags_wanted`` steps (the first exactly one),
+    with random impedances, permittivities and terminations (a resistor of 10 ohm to
+    5 kohm or none, 0-10 pF, a source ramp or wave per pair)."""
+    nb = len(lags_wanted)
+    ee, eo = rng.uniform(2.5, 4.5, nb), rng.uniform(2.0, 4.0, nb)
+    pair = from_modes(rng.uniform(45, 90, nb), rng.uniform(25, 45, nb), ee, eo)
+    speed = C0 / np.sqrt(np.minimum(ee, eo))
+    dt = 1e-12
+    lengths = np.asarray(lags_wanted, float) * dt * speed
+    lengths[0] = dt * speed[0]                     # a delay of exactly one step
+    t = np.arange(nt) * dt
+    ramp_steps = rng.integers(1, 200 if slow_source else 40, nb)
+    ramp = np.clip(t / (ramp_steps[:, None] * dt), 0.0, 1.0) * rng.uniform(1, 5, (nb, 1))
+    wave = 0.3 * np.sin(t / (37 * dt)) * rng.uniform(0, 1, (nb, 1)) if slow_source else 0.0
+
+    def resistors():
+        r = rng.uniform(10.0, 5e3, (nb, 2))
+        return np.where(rng.uniform(size=(nb, 2)) < 0.2, np.inf, r)
+
+    near_r = resistors()
+    near_r[:, 0] = rng.uniform(10.0, 80.0, nb)    # every pair driven through a resistor
+    near = EndLoads(near_r, rng.uniform(0, 10e-12, (nb, 2)),
+                    np.stack([ramp, np.broadcast_to(rng.uniform(0, 3.3, (nb, 1)) + wave,
+                                                    (nb, nt))], axis=1))
+    far = EndLoads(resistors(), rng.uniform(0, 10e-12, (nb, 2)), rng.uniform(0, 3.3, (nb, 2)))
+    return pair, lengths, t, near, far
+
+
+@pytest.mark.parametrize("seed, lags, nt, slow_source", [
+    (1, [1.0, 1.0001, 1.37, 1.999, 2.0, 2.0003, 3.0, 4.5], 700, False),
+    (2, [1.0, 2.6, 5.0, 7.99, 8.0, 12.3, 15.5, 16.0, 16.2, 23.0, 40.0, 118.7], 1500, True),
+    (3, [1.0, 1.5], 40, True),                     # fewer steps than one block
+    (4, [1.0], 129, False),
+])
+def test_waves_in_blocks_equal_the_step_by_step_march(monkeypatch, seed, lags, nt,
+                                                      slow_source):
+    from pinlib.physics import coupledwave
+    from pinlib.physics.coupledwave import coupled_waves_batch
+
+    rng = np.random.default_rng(seed)
+    pair, lengths, t, near, far = _random_pairs(rng, lags, nt, slow_source)
+    fast = coupled_waves_batch(pair, lengths, t, near, far, bitwise=False)
+    monkeypatch.setattr(coupledwave, "_run_length", lambda lag: 1)
+    steps = coupled_waves_batch(pair, lengths, t, near, far)
+    # derived from the method: the blocks are the steps' linear map, so the same
+    # voltages to rounding (1e-12 of each waveform's scale)
+    for got, want in ((fast.near, steps.near), (fast.far, steps.far)):
+        scale = np.abs(want).max(axis=-1, keepdims=True)
+        assert np.all(np.abs(got - want) <= 1e-12 * scale)
+    assert np.ptp(steps.far[:, 1], axis=-1).min() > 1e-6  # the victims move
+
+
+def test_blocks_keep_the_dc_state_of_sources_that_never_move():
+    from pinlib.physics.coupledwave import coupled_waves_batch
+
+    pair = from_modes(np.array([60.0, 70.0]), np.array([40.0, 35.0]), np.array([3.3, 3.0]),
+                      np.array([2.9, 2.7]))
+    lengths = np.array([1.0, 5.5]) * 1e-12 * C0 / np.sqrt(2.9)
+    t = np.arange(300) * 1e-12
+    near = EndLoads((25.0, 2.2e3), (0.0, 5e-12), (3.3, 1.0))
+    far = EndLoads((np.inf, 40.0), (4e-12, 8e-12), (0.0, 2.0))
+    fast = coupled_waves_batch(pair, lengths, t, near, far, bitwise=False)
+    steps = coupled_waves_batch(pair, lengths, t, near, far)
+    # derived from the method: a DC start with constant sources stays where it is
+    for got, want in ((fast.near, steps.near), (fast.far, steps.far)):
+        assert np.ptp(want, axis=-1).max() < 1e-12
+        assert np.abs(got - want).max() < 1e-12
+
+
+def test_blocks_take_only_the_short_delays_of_pairs_not_bitwise():
+    from pinlib.physics import coupledwave
+
+    lag = np.array([[1.0, 1.2], [3.5, 3.7], [15.9, 16.0], [16.1, 17.0], [40.0, 41.0]])
+    groups = coupledwave._groups(lag, bitwise=False)
+    in_blocks = sorted(int(i) for rows, how in groups if how == "blocks" for i in rows)
+    closed = [list(rows) for rows, how in groups if how == "closed"]
+    assert in_blocks == [0, 1, 2] and closed == [[3, 4]]
+    assert coupledwave._groups(lag, bitwise=True) == [(slice(None), "steps")]
+    groups = coupledwave._groups(lag, bitwise=[True, False, False, True, False])
+    assert [(list(rows), how) for rows, how in groups] == [
+        ([0, 3], "steps"), ([1], "blocks"), ([2], "blocks"), ([4], "closed")]
+
+
+def test_a_bitwise_pair_is_its_step_by_step_march_beside_faster_ones():
+    from pinlib.physics.coupledwave import coupled_waves_batch
+
+    rng = np.random.default_rng(5)
+    pair, lengths, t, near, far = _random_pairs(rng, [1.0, 3.2, 9.5, 30.0], 300, True)
+    alone = coupled_waves_batch(pair, lengths, t, near, far)
+    mixed = coupled_waves_batch(pair, lengths, t, near, far,
+                                bitwise=[False, True, False, True])
+    # derived from the method: each pair's arithmetic is its own, whatever the batch
+    for got, want in ((mixed.near, alone.near), (mixed.far, alone.far)):
+        assert np.array_equal(got[[1, 3]], want[[1, 3]])
+        assert np.all(np.abs(got - want) <= 1e-12 * np.abs(want).max(axis=-1, keepdims=True))

@@ -158,7 +158,8 @@ def _sweep(coupling, agg, vic, memo: dict, spacings) -> list[bool]:
     new = [float(s) for s in spacings if float(s) not in memo]
     if new:
         pair = pair_at(coupling, np.array(new))
-        for s, n in zip(new, noise_batch(pair, coupling.length, agg, vic), strict=True):
+        for s, n in zip(new, noise_batch(pair, coupling.length, agg, vic, bitwise=False),
+                        strict=True):
             memo[s] = n
     return [_passes(memo[float(s)], vic) for s in spacings]
 
@@ -175,10 +176,13 @@ def solve_coupling(coupling: Coupling, results: dict[str, BusResult], design: De
     agg = aggressor_of(coupling, results)
     lo, hi = _spacing_range(coupling)
     # the design point and the search's first grid in one solve, the waves of the first
-    # kept for the charts
+    # kept for the charts; the design point to the last bit (its figures are reported,
+    # and a swap's changes are differences of them), the search's pairs faster (they
+    # are read as pass or fail, and drawn)
     first = [float(x) for x in np.exp(np.linspace(np.log(lo), np.log(hi), SEARCH_POINTS))]
     spacings = [coupling.spacing] + first
-    t, rows = victim_waves(pair_at(coupling, np.array(spacings)), coupling.length, agg, vic)
+    t, rows = victim_waves(pair_at(coupling, np.array(spacings)), coupling.length, agg, vic,
+                           bitwise=[True] + [False] * len(first))
     memo: dict = {}
     for s, n in zip(spacings, noise_of_waves(t, rows, vic), strict=True):
         memo.setdefault(s, n)
@@ -189,8 +193,10 @@ def solve_coupling(coupling: Coupling, results: dict[str, BusResult], design: De
     er = max(float(pair.er_eff_even), float(pair.er_eff_odd))
     # the shortest run whose delay covers one time step of the solver (crosstalk._time_grid)
     len_lo = max(1e-3, 1.01 * ramp / 50 * 299_792_458.0 / math.sqrt(er))
+    # only pass or fail is read: the solver's faster form (its shortest run's delay is
+    # one step)
     l_max = edge_of_passing(
-        lambda ls: [_passes(n, vic) for n in noise_batch(pair, ls, agg, vic)],
+        lambda ls: [_passes(n, vic) for n in noise_batch(pair, ls, agg, vic, bitwise=False)],
         len_lo, LENGTH_SEARCH_MAX, rel=SEARCH_REL, points=SEARCH_POINTS,
         passing_above=False)
     return CouplingWorkings(coupling, vic, agg, t, waves, memo[coupling.spacing], memo,

@@ -139,19 +139,28 @@ def _stacked(vic: Victim, agg: Aggressor, t, ramp, nb: int):
     return ends
 
 
-def _excursion(t, v, threshold, held: str) -> EndNoise:
-    dev = v - v[0]
-    best = None
+def _excursions(t, rows, threshold, held: str) -> list[EndNoise]:
+    """The worst excursion of each waveform of ``rows`` (B, nt) held ``held``, over the
+    rising edge's noise and the falling edge's (its sign turned), all rows at once."""
+    dt = t[1] - t[0]
+    start = rows[:, :1]
+    dev = rows - start
+    edges = []
     for sign in (1.0, -1.0):  # the rising edge's noise, and the falling edge's
-        level = v[0] + sign * dev
+        level = start + sign * dev
         beyond = level > threshold if held == "low" else level < threshold
-        dt = t[1] - t[0]
-        worst = level.max() if held == "low" else level.min()
-        cand = EndNoise(float(worst), float(np.count_nonzero(beyond) * dt), bool(beyond[-1]))
-        if best is None or (cand.level > best.level if held == "low"
-                            else cand.level < best.level):
-            best = cand
-    return best
+        worst = level.max(axis=1) if held == "low" else level.min(axis=1)
+        edges.append((worst, np.count_nonzero(beyond, axis=1) * dt, beyond[:, -1]))
+    out = []
+    for b in range(rows.shape[0]):
+        best = None
+        for worst, time_beyond, still in edges:
+            cand = EndNoise(float(worst[b]), float(time_beyond[b]), bool(still[b]))
+            if best is None or (cand.level > best.level if held == "low"
+                                else cand.level < best.level):
+                best = cand
+        out.append(best)
+    return out
 
 
 def _check_inputs(vic: Victim, agg: Aggressor) -> None:
@@ -163,9 +172,13 @@ def _check_inputs(vic: Victim, agg: Aggressor) -> None:
 
 
 def victim_waves(line: CoupledLine, length, agg: Aggressor, vic: Victim,
-                 window: float = 150e-9):
+                 window: float = 150e-9, *, bitwise: bool | list = True):
     """The victim's waveforms at both ends for B pairs (``line``'s fields and ``length``
-    broadcast to (B,)), held low and held high, in one batched solve.
+    broadcast to (B,)), held low and held high, in one batched solve.  ``bitwise`` (a
+    bool or one per pair) False: the solver's faster form, equal to about 1e-13 of the
+    waveform's scale rather than to the last bit
+    (:func:`~pinlib.physics.coupledwave.coupled_waves_batch`), for a search that reads
+    only whether each pair passes.
 
     Returns ``(t, {(held, end): array (B, nt)})``. [s], [V]
     """
@@ -178,7 +191,8 @@ def victim_waves(line: CoupledLine, length, agg: Aggressor, vic: Victim,
     pair = CoupledLine(*(np.tile(np.broadcast_to(np.asarray(getattr(line, f), float),
                                                  (nb,)), 2)
                          for f in CoupledLine.__dataclass_fields__))
-    w = coupled_waves_batch(pair, np.tile(np.broadcast_to(length, (nb,)), 2), t, near, far)
+    w = coupled_waves_batch(pair, np.tile(np.broadcast_to(length, (nb,)), 2), t, near, far,
+                            bitwise=np.tile(np.broadcast_to(bitwise, (nb,)), 2))
     out = {}
     for k, held in enumerate(("low", "high")):
         rows = slice(k * nb, (k + 1) * nb)
@@ -188,9 +202,10 @@ def victim_waves(line: CoupledLine, length, agg: Aggressor, vic: Victim,
 
 
 def noise_batch(line: CoupledLine, length, agg: Aggressor, vic: Victim,
-                window: float = 150e-9) -> list[dict]:
-    """:func:`victim_noise` for B pairs in one solve: a list of B such dicts."""
-    t, waves = victim_waves(line, length, agg, vic, window)
+                window: float = 150e-9, *, bitwise: bool | list = True) -> list[dict]:
+    """:func:`victim_noise` for B pairs in one solve: a list of B such dicts
+    (``bitwise`` as :func:`victim_waves`)."""
+    t, waves = victim_waves(line, length, agg, vic, window, bitwise=bitwise)
     return noise_of_waves(t, waves, vic)
 
 
@@ -202,8 +217,8 @@ def noise_of_waves(t, waves: dict, vic: Victim) -> list[dict]:
         thr = (vic.vil if held == "low" else vic.vih).get(end)
         if thr is None:
             continue
-        for b in range(nb):
-            out[b][(held, end)] = _excursion(t, rows[b], thr, held)
+        for b, noise in enumerate(_excursions(t, rows, thr, held)):
+            out[b][(held, end)] = noise
     return out
 
 
@@ -327,8 +342,9 @@ def minimum_spacing(make_line, length: float, agg: Aggressor, vic: Victim, lo: f
     monotonically with spacing), on batched grids of spacings (:func:`edge_of_passing`).
     ``make_line(s)`` gives the pair at spacings ``s`` (an array: the physics broadcasts).
     None where even ``hi`` fails; ``lo`` where ``lo`` passes. [m]"""
-    def solve(s):
-        return [_passes(n, vic) for n in noise_batch(make_line(s), length, agg, vic)]
+    def solve(s):  # only pass or fail is read: the solver's faster form
+        return [_passes(n, vic)
+                for n in noise_batch(make_line(s), length, agg, vic, bitwise=False)]
 
     return edge_of_passing(solve, lo, hi, rel=rel)
 
@@ -337,7 +353,7 @@ def maximum_length(line: CoupledLine, agg: Aggressor, vic: Victim, lo: float, hi
                    *, rel=0.01) -> float | None:
     """The longest parallel run in [lo, hi] at which no check fails, on batched grids of
     lengths. None where even ``lo`` fails; ``hi`` where ``hi`` passes. [m]"""
-    def solve(lengths):
-        return [_passes(n, vic) for n in noise_batch(line, lengths, agg, vic)]
+    def solve(lengths):  # the shortest run's delay may span one step: the faster form
+        return [_passes(n, vic) for n in noise_batch(line, lengths, agg, vic, bitwise=False)]
 
     return edge_of_passing(solve, lo, hi, rel=rel, passing_above=False)

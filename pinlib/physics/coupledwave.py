@@ -21,6 +21,15 @@ every delay spans two steps or more the march goes in runs shorter than the shor
 delay: the waves a run reads are gathered, and all but the capacitors' memory formed,
 for the whole run at once (the same arithmetic as step by step, to the last bit).
 
+That march costs some fifteen numpy calls a run and two a step, whatever the batch, so
+a delay of one or two steps makes it slow.  A pair need not be kept to the last bit
+where only whether it passes is read (``bitwise=False``, a search's grid): the march is
+linear and time-invariant, so a pair whose delays span at most :data:`_BLOCK_ROWS`
+steps goes :data:`_BLOCK` steps at a time, its state (last voltages and the waves sent
+back to the longer delay) times one matrix per pair plus its sources' share; longer
+delays go in runs whose voltages are one product of their start and the waves they
+read.  Both equal the step-by-step march to about 1e-13 of the waveform's scale.
+
 The start is the DC state of the terminations (the line carries their DC current).
 """
 
@@ -31,6 +40,7 @@ from dataclasses import dataclass
 from typing import NamedTuple
 
 import numpy as np
+from numpy.lib.stride_tricks import as_strided
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
@@ -43,6 +53,12 @@ __all__ = ["EndLoads", "PairWaves", "coupled_waves", "coupled_waves_batch"]
 _T = np.array([[1.0, 1.0], [1.0, -1.0]]) / np.sqrt(2.0)
 #: Longest run of steps :func:`_march` gathers at once (its arrays are run x 4B values).
 _MAX_RUN = 256
+#: Most rows back (steps of the longer delay) a pair may read to be marched in blocks
+#: where the last bit need not be kept (a block's work grows with them; runs of
+#: :func:`_in_runs` are then at least this long).
+_BLOCK_ROWS = 16
+#: Steps of one block of :func:`_in_blocks` (at least :data:`_BLOCK_ROWS`).
+_BLOCK = 32
 
 
 @dataclass(frozen=True)
@@ -126,13 +142,15 @@ def coupled_waves(line: CoupledLine, length, t, near: EndLoads, far: EndLoads) -
 
 
 def coupled_waves_batch(line: CoupledLine, length, t, near: EndLoads,
-                        far: EndLoads) -> PairWaves:
+                        far: EndLoads, *, bitwise=True) -> PairWaves:
     """:func:`coupled_waves` for B pairs at once, on one time grid.
 
     ``line``'s fields and ``length`` broadcast to shape (B,); each :class:`EndLoads`
     gives ``r`` and ``c`` of shape (2,) or (B, 2) and ``v`` of shape (2,), (2, nt),
     (B, 2) or (B, 2, nt).  Returns :class:`PairWaves` whose ``near`` and ``far`` have
-    shape (B, 2, nt).
+    shape (B, 2, nt).  ``bitwise`` (a bool or one per pair) False lets pairs march
+    faster (:func:`_march`): the same voltages to about 1e-13 of their scale rather
+    than to the last bit, several times faster where a delay spans only a few steps.
     """
     length = np.atleast_1d(positive(length, "length", "[m]")).astype(float)
     t = np.asarray(t, dtype=float)
@@ -146,7 +164,7 @@ def coupled_waves_batch(line: CoupledLine, length, t, near: EndLoads,
         raise InputError(M.PARAMETER_OUT_OF_RANGE.format(name="t"), field="t", value=dt,
                          expected=f"a uniform step > 0 and <= the shorter modal delay "
                                   f"{tau.min():.4g} s")
-    return _march(z, tau, t, dt, near, far)
+    return _march(z, tau, t, dt, near, far, bitwise)
 
 
 class _Setup(NamedTuple):
@@ -169,7 +187,7 @@ class _Setup(NamedTuple):
     frac: np.ndarray
 
 
-def _march(z, tau, t, dt, near: EndLoads, far: EndLoads) -> PairWaves:
+def _march(z, tau, t, dt, near: EndLoads, far: EndLoads, bitwise=True) -> PairWaves:
     """Step the modal characteristics of B pairs through the grid (see the module).
 
     Both ends are stepped together (axis 0: near, far).  The history of the waves
@@ -181,11 +199,67 @@ def _march(z, tau, t, dt, near: EndLoads, far: EndLoads) -> PairWaves:
     Where every delay spans two steps or more, the steps go in runs
     (:func:`_in_runs`), else one by one (:func:`_one_by_one`).  Either way each value
     is the same arithmetic, in the same order and through the same kernels, as a step
-    written out on its own.
+    written out on its own.  Pairs not ``bitwise`` are marched apart (:func:`_groups`):
+    those whose delays span at most :data:`_BLOCK_ROWS` steps in blocks
+    (:func:`_in_blocks`), the rest in closed runs (:func:`_in_closed_runs`), the same
+    values to about 1e-13 of their scale, not to the last bit.
     """
     nb, nt = z.shape[0], t.size
-    g0, c0, vs0 = _end(near, nt, "near", nb)
-    g1, c1, vs1 = _end(far, nt, "far", nb)
+    ends = _end(near, nt, "near", nb), _end(far, nt, "far", nb)
+    lag = tau / dt
+    groups = _groups(lag, bitwise)
+    out = None if len(groups) == 1 and groups[0][1] == "steps" else np.empty((nt, 2, nb, 2))
+    # the blocks read the sources only up to one step after their last move
+    span = _moving_steps(ends[0][2], ends[1][2]) if out is not None else nt
+    for rows, how in groups:
+        s, v_dc = _setup(z[rows], lag[rows], dt,
+                         *((x[..., :span] if how == "blocks" and x.ndim == 3 else x)[rows]
+                           for e in ends for x in e), record=how != "blocks")
+        if how == "blocks":
+            out[:, :, rows] = _in_blocks(s, lag[rows], v_dc, nt)
+            continue
+        v_ends = np.empty((nt + 1,) + v_dc.shape)
+        v_ends[0] = v_dc                               # the state before the edge
+        run = _run_length(lag[rows])
+        if run > 1:
+            (_in_runs if how == "steps" else _in_closed_runs)(s, v_ends, run)
+        else:
+            _one_by_one(s, v_ends)
+        if out is None:
+            out = v_ends[1:]
+        else:
+            out[:, :, rows] = v_ends[1:]
+    return PairWaves(t, np.moveaxis(out[:, 0], 0, -1), np.moveaxis(out[:, 1], 0, -1))
+
+
+def _groups(lag, bitwise) -> list:
+    """The pairs marched together and how: ``(rows, "steps" | "blocks" | "closed")``.
+    Those ``bitwise`` (a bool or one per pair) in one march by the steps' own
+    arithmetic; of the others, those reading at most :data:`_BLOCK_ROWS` rows back in
+    blocks, a group for each power of two of rows (a block's work grows with its rows),
+    and the rest in closed runs."""
+    exact = np.broadcast_to(np.asarray(bitwise, bool), lag.shape[:1])
+    if exact.all():
+        return [(slice(None), "steps")]
+    out = [(np.flatnonzero(exact), "steps")] if exact.any() else []
+    reach = np.ceil(lag.max(axis=1)).astype(int)
+    short = (reach <= _BLOCK_ROWS) & ~exact
+    bins = np.ceil(np.log2(np.maximum(reach, 2))).astype(int)
+    # (np.unique would import numpy.ma, some milliseconds the command does not need)
+    out += [(np.flatnonzero(short & (bins == b)), "blocks")
+            for b in sorted(set(bins[short].tolist()))]
+    if (long := ~short & ~exact).any():
+        out.append((np.flatnonzero(long), "closed"))
+    return out
+
+
+def _setup(z, lag, dt, g0, c0, vs0, g1, c1, vs1, record: bool = True):
+    """The :class:`_Setup` of B pairs (their terminations from :func:`_end`) and the
+    DC state of their ends, shape (2, B, 2).  Without ``record`` (the blocks, given
+    the sources up to one step after their last move: :func:`_moving_steps`), the
+    record holds the DC waves only and ``s_n`` is the matrix ``S[n] = s_n @ src[n]``.
+    """
+    nb, nt = z.shape[0], vs0.shape[-1]
     g, k = np.stack([g0, g1]), np.stack([c0, c1]) / dt                   # (2, B, 2)
     zc = np.einsum("ij,bj,jk->bik", _T, z, _T)                            # (B, 2, 2)
     solve = np.linalg.inv(np.eye(2) + zc[None] * (g + k)[:, :, None, :])  # (2, B, 2, 2)
@@ -194,28 +268,28 @@ def _march(z, tau, t, dt, near: EndLoads, far: EndLoads) -> PairWaves:
     zs = solve @ zc[None]
     v_dc, i_dc = _dc(g0, vs0[:, :, 0], g1, vs1[:, :, 0])
     init = np.stack([v_dc @ _T + z * (i_dc @ _T), v_dc @ _T - z * (i_dc @ _T)])
-    lag = tau / dt
     width = 4 * nb
     pad = int(np.ceil(lag.max())) + 2
-    h = np.zeros((pad + nt) * width)
-    h[:pad * width] = np.tile(init.ravel(), pad)
     back = np.floor(-lag).astype(int)                  # row n + back, weight 1 - frac
     frac = np.tile((-lag - back).ravel(), 2).reshape(2, nb, 2)
+    if not record:
+        return _Setup(z, solve @ _T, zs, zs * k[:, :, None, :], g + k, k, src, init[None],
+                      0, None, 1.0 - frac, frac), np.broadcast_to(v_dc, (2, nb, 2))
+    h = np.zeros((pad + nt) * width)
+    h[:pad * width] = np.tile(init.ravel(), pad)
     # each end reads the waves the other end sent
     other = np.concatenate([np.arange(2 * nb, width), np.arange(2 * nb)])
     base = (np.tile(((back + pad) * width).ravel(), 2) + other).reshape(2, nb, 2)
-    setup = _Setup(z, solve @ _T, np.einsum("ebij,nebj->nebi", zs, src),
-                   zs * k[:, :, None, :], g + k, k, src, h.reshape(pad + nt, 2, nb, 2),
-                   pad, base, 1.0 - frac, frac)
-    v_ends = np.empty((nt + 1, 2, nb, 2))
-    v_ends[0] = v_dc                                   # the state before the edge
-    run = _run_length(lag)
-    if run > 1:
-        _in_runs(setup, v_ends, run)
-    else:
-        _one_by_one(setup, v_ends)
-    v_ends = v_ends[1:]
-    return PairWaves(t, np.moveaxis(v_ends[:, 0], 0, -1), np.moveaxis(v_ends[:, 1], 0, -1))
+    s = _Setup(z, solve @ _T, np.einsum("ebij,nebj->nebi", zs, src), zs * k[:, :, None, :],
+               g + k, k, src, h.reshape(pad + nt, 2, nb, 2), pad, base, 1.0 - frac, frac)
+    return s, np.broadcast_to(v_dc, (2, nb, 2))
+
+
+def _moving_steps(vs0, vs1) -> int:
+    """Steps up to one after the sources' last move (at least one): every later step
+    repeats the last of them."""
+    moves = [np.flatnonzero(np.any(x[..., 1:] != x[..., :-1], axis=(0, 1))) for x in (vs0, vs1)]
+    return min(vs0.shape[-1], 2 + max(int(m.max(initial=-1)) for m in moves))
 
 
 def _run_length(lag) -> int:
@@ -235,10 +309,11 @@ def _in_runs(s: _Setup, v_ends: np.ndarray, run: int) -> None:
     """
     nt = v_ends.shape[0] - 1
     width = s.base.size
+    flat = s.rows.reshape(-1)
+    steps = np.arange(nt) * width
     for n0 in range(0, nt, run):
         n1 = min(n0 + run, nt)
-        idx = s.base + (np.arange(n0, n1) * width)[:, None, None, None]
-        flat = s.rows.reshape(-1)
+        idx = s.base + steps[n0:n1, None, None, None]
         a = s.keep * flat[idx] + s.frac * flat[idx + width]             # (K, 2, B, 2)
         u = np.matmul(s.m, a[..., None])[..., 0] + s.s_n[n0:n1]
         for n in range(n0, n1):
@@ -247,6 +322,68 @@ def _in_runs(s: _Setup, v_ends: np.ndarray, run: int) -> None:
         v, vp = v_ends[n0 + 1:n1 + 1], v_ends[n0:n1]
         i = s.src[n0:n1] - s.gk * v + s.k * vp
         s.rows[s.pad + n0:s.pad + n1] = v @ _T + s.z * (i @ _T)
+
+
+def _in_closed_runs(s: _Setup, v_ends: np.ndarray, run: int) -> None:
+    """:func:`_in_runs` with each run's voltages in one product (to rounding, not to the
+    bit): ``[v[0], the K + 1 rows of waves the run reads]`` times one matrix per end
+    and pair (:func:`_run_matrix`), plus the sources' share, formed for every run
+    before the march."""
+    nt = v_ends.shape[0] - 1
+    nb, width = s.base.shape[1], s.base.size
+    mat, share = _run_matrix(s, run, nt)
+    flat = s.rows.reshape(-1)
+    # where each end reads row q of a run (q = 0..K) of each mode: (2, B, K + 1, 2)
+    reads = (s.base[:, :, None, :] + (np.arange(run + 1) * width)[:, None]).reshape(
+        2, nb, -1)
+    buf = np.empty((2, nb, 2 * run + 4, 1))
+    for r, n0 in enumerate(range(0, nt, run)):
+        n1 = min(n0 + run, nt)
+        kn = n1 - n0
+        buf[:, :, :2, 0] = v_ends[n0]
+        buf[:, :, 2:, 0] = flat[reads + n0 * width]
+        x = mat[:, :, :2 * kn] @ buf
+        x[..., 0] += share[:, :, r, :2 * kn]
+        v_ends[n0 + 1:n1 + 1] = np.moveaxis(x.reshape(2, nb, kn, 2), 2, 0)
+        v, vp = v_ends[n0 + 1:n1 + 1], v_ends[n0:n1]
+        i = s.src[n0:n1] - s.gk * v + s.k * vp
+        s.rows[s.pad + n0:s.pad + n1] = v @ _T + s.z * (i @ _T)
+
+
+def _run_matrix(s: _Setup, run: int, nt: int):
+    """The matrix of :func:`_in_closed_runs` (2, B, 2K, 2K + 4) and each run's share of
+    the sources (2, B, runs, 2K): ``v[j] = P**j v[0] + sum over i < j of P**(j - 1 -
+    i) (M a[i] + S[i])`` with ``a[i] = keep row[i] + frac row[i + 1]``."""
+    powers = np.empty((run + 1,) + s.p.shape)
+    powers[0] = np.eye(2)
+    for j in range(run):
+        np.matmul(s.p, powers[j], out=powers[j + 1])
+    gap = np.arange(run)[:, None] - np.arange(run)[None, :]          # j - i
+    lower = np.where((gap >= 0)[:, :, None, None, None, None],
+                     powers[np.clip(gap, 0, run)], 0.0)    # (K_j, K_i, 2, B, 2, 2)
+    lower = lower.transpose(2, 3, 0, 1, 4, 5)              # (2, B, K_j, K_i, 2, 2)
+    nb = lower.shape[1]
+    on_a = (lower.reshape(2, nb, -1, 2) @ s.m).reshape(lower.shape).transpose(
+        0, 1, 2, 4, 3, 5)
+    on_u = lower.transpose(0, 1, 2, 4, 3, 5)               # (2, B, K_j, 2, K_i, 2)
+    mat = np.zeros((2, s.p.shape[1], run, 2, run + 2, 2))
+    mat[:, :, :, :, 0] = np.moveaxis(powers[1:], 0, 2)     # v[0]
+    mat[:, :, :, :, 1:-1] += on_a * s.keep[:, :, None, None, None, :]
+    mat[:, :, :, :, 2:] += on_a * s.frac[:, :, None, None, None, :]
+    nrun = -(-nt // run)
+    s_n = np.concatenate([s.s_n, np.repeat(s.s_n[-1:], nrun * run - nt, axis=0)])
+    s_n = s_n.reshape(nrun, run, 2, nb, 2)
+    lower = on_u.reshape(2, nb, 2 * run, 2 * run)
+    share = np.empty((2, nb, nrun, 2 * run))
+    const = np.all(s_n == s_n[:, :1], axis=(1, 2, 3, 4))
+    if const.any():                                        # constant sources: summed
+        total = on_u.sum(axis=4)                           # (2, B, K_j, 2, 2)
+        share[:, :, const] = (total.reshape(2, nb, 2 * run, 2) @ np.ascontiguousarray(
+            s_n[const, 0].transpose(1, 2, 3, 0))).swapaxes(2, 3)
+    if not const.all():
+        var = s_n[~const].transpose(2, 3, 1, 4, 0).reshape(2, nb, 2 * run, -1)
+        share[:, :, ~const] = (lower @ var).swapaxes(2, 3)
+    return mat.reshape(2, nb, 2 * run, 2 * run + 4), share
 
 
 def _one_by_one(s: _Setup, v_ends: np.ndarray) -> None:
@@ -270,3 +407,121 @@ def _one_by_one(s: _Setup, v_ends: np.ndarray) -> None:
 
 def _matvec(m, x):
     return np.matmul(m, x[..., None])[..., 0]
+
+
+def _in_blocks(s: _Setup, lag, v_dc, nt: int) -> np.ndarray:
+    """``v_ends[1:]`` of G pairs, shape (nt, 2, G, 2), marched :data:`_BLOCK` steps at a
+    time by the march's state-space form (:func:`_one_step`): a block's voltages and
+    the state it leaves (its last voltage and R rows of waves) are its start's state
+    times one matrix per pair (:func:`_block_gain`), plus its inputs' share
+    (:func:`_input_share`).  One matrix product a block, whatever the delays; its size
+    grows with the rows a pair reads back, so only short delays come here.
+    ``s`` is a :func:`_setup` without its record.
+    """
+    a, b_in = _one_step(s, lag)
+    g, size = a.shape[0], a.shape[1]
+    gain, taps, keep = _block_gain(a, b_in)
+    nblk = -(-nt // _BLOCK)
+    moved = np.flatnonzero(np.any(s.src[1:] != s.src[:-1], axis=(1, 2, 3)))
+    nvar = 0 if moved.size == 0 else -(-(int(moved[-1]) + 2) // _BLOCK)
+    # the inputs [S[n], src[n]] of the blocks whose sources move, and the constant after
+    src = s.src[np.minimum(np.arange(nvar * _BLOCK), len(s.src) - 1)]
+    u = np.concatenate([np.moveaxis(x, 2, 0).reshape(g, nvar, _BLOCK, 4)
+                        for x in ((s.s_n @ src[..., None])[..., 0], src)], axis=-1)
+    last = np.concatenate([np.moveaxis(x, 1, 0).reshape(g, 4)
+                           for x in ((s.s_n @ s.src[-1, ..., None])[..., 0], s.src[-1])],
+                          axis=-1)
+    moving, steady = _input_share(taps, u, last, keep)
+    out = np.empty((nblk, g, keep.size))
+    state = np.concatenate([np.moveaxis(v_dc, 1, 0).reshape(g, 4),
+                            np.tile(np.moveaxis(s.rows[0], 1, 0).reshape(g, 4),
+                                    (size - 4) // 4)], axis=1)
+    for i in range(nblk):
+        np.matmul(gain, state[..., None], out=out[i, :, :, None])
+        out[i] += moving[i] if i < nvar else steady
+        state = out[i, :, 4 * _BLOCK - 4:]
+    v = out[:, :, :4 * _BLOCK].reshape(nblk, g, _BLOCK, 2, 2)
+    return np.moveaxis(v, 2, 1).reshape(nblk * _BLOCK, g, 2, 2)[:nt].swapaxes(1, 2)
+
+
+def _block_gain(a, b_in):
+    """What a block of K = :data:`_BLOCK` steps makes of its start's state and of its
+    inputs.  Row ``j`` of ``rows`` (K + 1, G, 8, 4 + 4R) is ``a**j`` read at the
+    newest voltage and waves, so step j of a block gives ``rows[j + 1] @ state``
+    plus ``taps[j - i] @ u[i]`` (taps (G, K, 8, 8)) of its inputs.  Of those K x 8
+    values the block keeps (``keep``) its K voltages and the R newest rows of waves:
+    ``gain`` (G, 4K + 4R, 4 + 4R)."""
+    g, size = a.shape[0], a.shape[1]
+    reach = (size - 4) // 4
+    rows = np.empty((_BLOCK + 1, g, 8, size))
+    rows[0] = 0.0
+    rows[0, :, :4, :4] = np.eye(4)
+    rows[0, :, 4:, size - 4:] = np.eye(4)
+    for j in range(_BLOCK):
+        np.matmul(rows[j], a, out=rows[j + 1])
+    taps = np.moveaxis(rows[:_BLOCK] @ b_in, 0, 1)                  # (G, K, 8, 8)
+    keep = np.concatenate([(8 * np.arange(_BLOCK)[:, None] + np.arange(4)).ravel(),
+                           (8 * np.arange(_BLOCK - reach, _BLOCK)[:, None]
+                            + np.arange(4, 8)).ravel()])
+    gain = np.moveaxis(rows[1:], 0, 1).reshape(g, 8 * _BLOCK, size)[:, keep]
+    return gain, taps, keep
+
+
+def _input_share(taps, u, last, keep):
+    """The blocks' outputs (``keep`` of their K x 8) from their own inputs: of each block
+    whose sources move (u: (G, nvar, K, 8)), step j takes ``sum over i <= j of
+    taps[j - i] @ u[i]``, (nvar, G, 4K + 4R); of every later block, whose inputs stay
+    at ``last`` (G, 8), the running sums of the taps times it, (G, 4K + 4R)."""
+    g, nvar, kb, _ = u.shape
+    steady = (np.cumsum(taps, axis=1) @ last[:, None, :, None]).reshape(g, -1)[:, keep]
+    # the inputs before each step, latest last: row j holds u[j - K + 1 .. j] (zero
+    # before the block), a strided view of the block after K - 1 rows of zeros
+    pre = np.concatenate([np.zeros((g, nvar, kb - 1, 8)), u], axis=2)
+    window = as_strided(pre, (g, nvar, kb, kb * 8), pre.strides[:2] + pre.strides[2:])
+    moving = window @ np.swapaxes(taps[:, ::-1], 2, 3).reshape(g, 1, kb * 8, 8)
+    return np.moveaxis(moving.reshape(g, nvar, kb * 8)[:, :, keep], 1, 0), steady
+
+
+def _one_step(s: _Setup, lag):
+    """One step of the march as a linear map of G pairs: ``state' = a @ state + b_in @
+    u``, the state ``[v (end, conductor), then the waves sent (end, mode) R rows back
+    to one]`` (4 + 4R values), ``u = [S[n], src[n]]`` (the sources' two terms), R the
+    most rows back a pair reads.  Returns ``a`` (G, 4 + 4R, 4 + 4R) and ``b_in``
+    (G, 4 + 4R, 8)."""
+    g = s.z.shape[0]
+    back = np.ceil(lag).astype(int)                    # rows back of the first tap
+    reach = int(back.max())
+    size = 4 + 4 * reach
+    cases = np.arange(g)
+    # the incoming waves a (end e, mode j): the other end's waves at two taps
+    read = np.zeros((g, 4, size))
+    for e in range(2):
+        for j in range(2):
+            col = 4 + 4 * (reach - back[:, j]) + 2 * (1 - e) + j
+            read[cases, 2 * e + j, col] = s.keep[e, :, j]
+            two = back[:, j] > 1                       # a lag of one step: weight 0
+            read[cases[two], 2 * e + j, col[two] + 4] = s.frac[e, two, j]
+    v_x = _blockdiag(s.m) @ read
+    v_x[:, :, :4] += _blockdiag(s.p)
+    v_u = np.eye(4, 8)
+    gk, k = (np.moveaxis(x, 1, 0).reshape(g, 4, 1) for x in (s.gk, s.k))
+    i_x = -gk * v_x
+    i_x[:, :, :4] += k * np.eye(4)
+    i_u = -gk * v_u + np.eye(4, 8, 4)
+    tt = np.kron(np.eye(2), _T)
+    zz = np.tile(s.z, 2)[:, :, None]                   # mode j of each end
+    a = np.zeros((g, size, size))
+    a[:, :4] = v_x
+    a[:, 4:size - 4, 8:] = np.eye(size - 8)            # the older waves move down a row
+    a[:, size - 4:] = tt @ v_x + zz * (tt @ i_x)
+    b_in = np.zeros((g, size, 8))
+    b_in[:, :4] = v_u
+    b_in[:, size - 4:] = tt @ v_u + zz * (tt @ i_u)
+    return a, b_in
+
+
+def _blockdiag(x):
+    """(2, G, 2, 2) -> (G, 4, 4): each pair's two ends' matrices on the diagonal."""
+    out = np.zeros((x.shape[1], 4, 4))
+    out[:, :2, :2], out[:, 2:, 2:] = x[0], x[1]
+    return out
