@@ -212,3 +212,20 @@ def test_demo_spi_buses_report_line_and_timing_figures(capsys):
             assert line["figures"]["model"]["value"] in ("lumped", "distributed")
             for check in line["checks"]:
                 assert check["source"], check["id"]
+
+
+def test_every_invalid_field_of_a_design_named_in_one_run(tmp_path, capsys):
+    # Four problems in one file: the command names them all, the first as the error and
+    # the others after it in the file's order (a misspelt key would come first).
+    design = tmp_path / "four.toml"
+    design.write_text('format = "pinlib.design/1"\ntitle = "four"\nwarn_margin = "yes"\n'
+                      '[[bus]]\nid = "b"\nprotocol = "i2c"\nspi_mode = 2.5\n'
+                      'supply = true\n[[bus.devices]]\nref = "U1"\npart = "mcu-3v3"\n'
+                      'switched = "no"\n', encoding="utf-8")
+    assert main(["check", str(design)]) == 2
+    lines = capsys.readouterr().err.splitlines()
+    assert [line.split(":")[0] for line in lines] == ["pinlib"] * 4
+    assert lines[0].startswith(f"pinlib: error: {design}:3, field 'warn_margin'")
+    assert [line.split(", field ")[0].rsplit(":", 1)[1] for line in lines[1:]] == \
+        ["7", "8", "12"]
+    assert all(line.startswith("pinlib: also: ") for line in lines[1:])

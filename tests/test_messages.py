@@ -466,6 +466,14 @@ def _(env):  # a bus table has 19 fields: ten are listed, the closest named apar
                   env).message
 
 
+@case("FURTHER_PROBLEMS", M.FURTHER_PROBLEMS.format(n=2))
+def _(env):  # twelve invalid fields: the first, nine more listed, the count of the rest
+    bad = "".join(f'\n[[bus]]\nid = "b{i}"\nprotocol = "i2c"\nsupply = true\n'
+                  for i in range(12))
+    env.write("many.toml", HEAD + bad)
+    return env.cli("check", str(env.tmp / "many.toml"))
+
+
 @case("COLUMNS_LEFT_OUT", M.COLUMNS_LEFT_OUT.split("{")[0])
 def _(env):
     env.monkeypatch.setenv("COLUMNS", "60")  # a table wider than that drops columns

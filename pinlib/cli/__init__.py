@@ -15,6 +15,7 @@ import sys
 
 from pinlib import __version__
 from pinlib.cli.startup import one_blas_thread
+from pinlib.core import messages as M
 from pinlib.core.errors import PinlibError
 
 __all__ = ["main", "entry", "COMMANDS"]
@@ -113,12 +114,25 @@ def _main(argv: list[str] | None) -> int:
     try:
         return int(args.run(args) or 0)
     except PinlibError as err:
-        print(f"pinlib: error: {err.message}", file=sys.stderr)
+        _print_error(err)
         return 2
     except KeyboardInterrupt:
         return _interrupted()
     except BrokenPipeError:
         return 0
+
+
+#: How many of an error's further problems (:attr:`PinlibError.also`) are listed.
+ALSO_SHOWN = 9
+
+
+def _print_error(err: PinlibError) -> None:
+    """The error, then the further problems found with it (at most :data:`ALSO_SHOWN`)."""
+    print(f"pinlib: error: {err.message}", file=sys.stderr)
+    for other in err.also[:ALSO_SHOWN]:
+        print(f"pinlib: also: {other.message}", file=sys.stderr)
+    if len(err.also) > ALSO_SHOWN:
+        print(M.FURTHER_PROBLEMS.format(n=len(err.also) - ALSO_SHOWN), file=sys.stderr)
 
 
 if __name__ == "__main__":  # pragma: no cover

@@ -56,6 +56,9 @@ class PinlibError(Exception):
         What would have been accepted.
     hint : optional
         A suggestion to fix it (a closest match, a unit to add).
+    also : sequence of PinlibError, optional
+        Further problems found in the same pass over the same input (a file's other
+        invalid fields), shown after this one.
     """
 
     def __init__(
@@ -68,6 +71,7 @@ class PinlibError(Exception):
         value: object = None,
         expected: str | None = None,
         hint: str | None = None,
+        also: tuple = (),
     ) -> None:
         self.problem = problem
         self.file = str(file) if file is not None else None
@@ -76,6 +80,7 @@ class PinlibError(Exception):
         self.value = value
         self.expected = expected
         self.hint = hint
+        self.also = tuple(also)
         super().__init__(self.message)
 
     def located(self, *, file=None, line=None, field_prefix=None):
@@ -91,6 +96,7 @@ class PinlibError(Exception):
             value=self.value,
             expected=self.expected,
             hint=self.hint,
+            also=self.also,
         )
 
     @property

@@ -88,6 +88,8 @@ PART_DOES_NOT_VALIDATE = "part '{part}' does not load: {problem}"
 # hints of PART_DOES_NOT_VALIDATE and UNKNOWN_PART
 NAMED_AT = "the part is named at {where}"
 MORE_PROBLEMS = "{n} more problem(s): 'pinlib parts check' lists them"
+# after the further problems the command line lists with an error (pinlib/cli)
+FURTHER_PROBLEMS = "pinlib: and {n} more problem(s) in the same file"
 UNREAD_FILES = "{n} library file(s) could not be read, the first: {first}"
 EXTENDS_TOO_DEEP = "an extends chain deeper than {limit} levels"
 LIBRARY_IS_SYSTEM_FOLDER = "a library folder may not be a system folder ({real})"

@@ -61,9 +61,12 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
     except RecordError as exc:
         errors = record_errors(exc, file=fname, locate=lambda _f, loc: line_of(index, loc),
                                  cls=DesignError, model=RawDesign, format_name="design")
-        # a misspelt key explains the required field it leaves missing: name it first
-        errors.sort(key=lambda e: e.problem != M.UNKNOWN_FIELD)
-        raise errors[0] from None
+        # a misspelt key explains the required field it leaves missing: name it first;
+        # the others follow in the file's order, so one run names every invalid field
+        errors.sort(key=lambda e: (e.problem != M.UNKNOWN_FIELD, e.line or 0))
+        first = errors[0]
+        first.also = tuple(errors[1:])
+        raise first from None
     if library is None:
         base = path.parent if path else Path.cwd()
         own = [base / p for p in raw.library]
