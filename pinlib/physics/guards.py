@@ -15,6 +15,8 @@ from pinlib.core.errors import InputError
 
 __all__ = ["floats", "positive", "non_negative"]
 
+_INF = float("inf")
+
 
 def floats(value, name: str, *, problem: str = M.NOT_A_NUMBER,
            expected: str = "a float [SI]") -> np.ndarray:
@@ -34,8 +36,12 @@ def positive(value, name: str, unit: str, *, allow_inf: bool = False,
     if problem is None:
         problem = M.MUST_BE_POSITIVE if allow_inf else M.MUST_BE_FINITE_POSITIVE
     x = convert(value, name)
-    ok = x > 0.0 if allow_inf else np.isfinite(x) & (x > 0.0)  # NaN > 0 is False
-    if not ok.all():
+    if x.ndim == 0:  # one number (most calls at one variant): plain comparisons
+        v = float(x)
+        ok = v > 0.0 if allow_inf else 0.0 < v < _INF  # NaN compares False
+    else:
+        ok = (x > 0.0 if allow_inf else np.isfinite(x) & (x > 0.0)).all()
+    if not ok:
         raise InputError(problem, field=name, value=value,
                          expected=f"a number > 0 {unit}" + ("" if allow_inf else ", finite"))
     return x
@@ -45,6 +51,7 @@ def non_negative(value, name: str, unit: str, *, problem: str = M.MUST_BE_FINITE
                  convert=floats) -> np.ndarray:
     """A float array of finite numbers at or above 0. [unit]"""
     x = convert(value, name)
-    if not (np.isfinite(x) & (x >= 0.0)).all():
+    ok = (0.0 <= float(x) < _INF) if x.ndim == 0 else (np.isfinite(x) & (x >= 0.0)).all()
+    if not ok:
         raise InputError(problem, field=name, value=value, expected=f"a number >= 0 {unit}, finite")
     return x
