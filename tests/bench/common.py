@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import gc
+import math
 import os
 import platform
 import statistics
@@ -10,7 +11,10 @@ import sys
 import time
 from dataclasses import dataclass, field
 
-__all__ = ["Result", "median_time", "machine", "format_seconds", "format_ratio"]
+import numpy as np
+
+__all__ = ["Result", "median_time", "machine", "format_seconds", "format_ratio",
+           "reference_work"]
 
 
 def median_time(func, repeats: int, *, warmup: int = 1) -> float:
@@ -24,6 +28,23 @@ def median_time(func, repeats: int, *, warmup: int = 1) -> float:
         func()
         times.append(time.perf_counter() - start)
     return statistics.median(times)
+
+
+def reference_work() -> float:
+    """A fixed piece of work of the kind pinlib's engines do at one variant, with no
+    pinlib code in it: small numpy arrays (where, sums, logs) between plain float
+    arithmetic, dicts and string formatting.  A benchmark times it beside its subject, in
+    turn, so that a ratio against it compares runs of code that has since changed (the
+    subject's old form can no longer be run) on any machine and under any load.
+    Returns a number so that the work is not optimised away."""
+    a = np.array([1.0e-9, 2.2e-9, 3.3e-9])
+    total = 0.0
+    for i in range(400):
+        b = np.where(a > 2.0e-9, a * 1.5, a - 1.0e-10)
+        total += float(np.log(b).sum()) + math.log1p(i) / (1.0 + i)
+        row = {"value": total, "limit": 0.3 * i, "unit": "s"}
+        total += len(f"{row['value']:.4g} against {row['limit']:.4g} {row['unit']}")
+    return total
 
 
 def format_seconds(seconds: float) -> str:
