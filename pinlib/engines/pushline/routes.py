@@ -26,7 +26,7 @@ from pinlib.engines.pushline.rules import (
 )
 from pinlib.engines.pushline.sections import Stretch
 from pinlib.engines.pushline.treeshape import shape_from
-from pinlib.engines.pushline.waves import EdgeWave, _grid
+from pinlib.engines.pushline.waves import EdgeWave, UnitEdgeWave, _grid
 from pinlib.physics import waveform as wf
 
 #: Times a route's record is lengthened (threefold) to settle.  The branches of a lossless
@@ -193,10 +193,13 @@ class PointWaves:
             row = self._row(node)
             v = self.v_from + (self.v_to - self.v_from) * self._unit[row]
             hi, lo = max(self.v_from, self.v_to), min(self.v_from, self.v_to)
-            got = EdgeWave(self.edge, self.t.copy(), v, self.v_from, self.v_to,
-                           float(wf.edge_time(self.t, v, self.v_to, v_initial=self.v_from)),
-                           float(wf.overshoot(v, hi)), float(wf.undershoot(v, lo)),
-                           bool(self._settled[row]))
+            # its record made again from the unit response when read, the same way (a
+            # line of many drivers reads the records of few of its edges)
+            got = UnitEdgeWave(self.edge, (self.t, self._unit[row]), self.v_from, self.v_to,
+                               float(wf.edge_time(self.t, v, self.v_to,
+                                                  v_initial=self.v_from)),
+                               float(wf.overshoot(v, hi)), float(wf.undershoot(v, lo)),
+                               bool(self._settled[row]), None)
             self._made[node] = got
         return got
 
