@@ -8,7 +8,9 @@ prints the ratio: k means the cost grows linearly.  The inputs (invented test da
 * devices on one I2C bus and on one SPI bus, loaded and checked;
 * sections of one SPI line with a series resistor to choose, loaded and checked;
 * peripherals on one CIPO line (4 -> 8 -> 16 -> 32), every one at the far end or each on
-  a branch of a routed star of its own length;
+  a branch of a routed star (four branch lengths, repeated: equal branches share a solve);
+  and 16 -> 32 on a star whose branches all differ (every driver its own solve over a
+  tree of all the others: about N² node-records, printed without a target);
 * Monte Carlo boards, with the peak of traced memory as well (1 = bounded).
 
 The push-pull engine checks every driver into the pins of every other device, so the
@@ -87,15 +89,17 @@ lines.cipo = {{ length = "3 cm", geometry = "g" }}
 """)
 
 
-def _spi_cipo(n: int, routed: bool) -> str:
+def _spi_cipo(n: int, routed: bool, distinct: bool = False) -> str:
     """An SPI bus of ``n`` peripherals whose CIPO each drives in turn: every device at the
     far end, or (``routed``) each on a star branch of 1 to 4 cm (every length from 4
-    peripherals on, so that the record, set by the longest branch, does not grow)."""
+    peripherals on, so that the record, set by the longest branch, does not grow;
+    ``distinct``: spread evenly over 1 to 4 cm, no two equal)."""
     refs = [f"P{i}" for i in range(n)]
     devices = "".join(f'  {{ ref = "{r}", part = "nor-flash-spi" }},\n' for r in refs)
     if routed:
-        branches = ", ".join(f'{{ from = "S", to = "{r}", length = "{1 + i % 4} cm", '
-                             'geometry = "g" }' for i, r in enumerate(refs))
+        cm = [1 + 3 * i / (n - 1) if distinct else 1 + i % 4 for i in range(n)]
+        branches = ", ".join(f'{{ from = "S", to = "{r}", length = "{c:.4g} cm", '
+                             'geometry = "g" }' for c, r in zip(cm, refs, strict=True))
         cipo = (f'{{ route = [{{ from = "U1", to = "S", length = "2 cm", geometry = "g" }}, '
                 f"{branches}] }}")
     else:
@@ -185,6 +189,9 @@ def run(repeats: int = 3, quick: bool = False) -> list[Result]:
                                 _spi_cipo(n, False), _spi_cipo(2 * n, False), 2, tmp, repeats))
             out.append(_scaling(f"SPI CIPO: {2 * n} peripherals on a routed star",
                                 _spi_cipo(n, True), _spi_cipo(2 * n, True), 2, tmp, repeats))
+        out.append(_scaling("SPI CIPO: 32 peripherals, a star of distinct branches",
+                            _spi_cipo(16, True, True), _spi_cipo(32, True, True), 2, tmp,
+                            repeats, linear=False))
         out.append(_scaling("SPI line: 32 sections, auto resistor", _spi(2, 8), _spi(2, 32),
                             4, tmp, repeats))
         # above whatif.SENSITIVITY_BOARDS (100,000), whose draws a run keeps

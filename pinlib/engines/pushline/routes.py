@@ -25,7 +25,8 @@ from pinlib.engines.pushline.rules import (
     _STEPS_PER_TAU,
 )
 from pinlib.engines.pushline.sections import Stretch
-from pinlib.engines.pushline.waves import EdgeWave, _grid
+from pinlib.engines.pushline.treeshape import shape_from
+from pinlib.engines.pushline.waves import EdgeWave, UnitEdgeWave, _grid
 from pinlib.physics import waveform as wf
 
 #: Times a route's record is lengthened (threefold) to settle.  The branches of a lossless
@@ -147,18 +148,33 @@ class PointWaves:
         Levels before and after the edge. [V]
     """
 
-    def __init__(self, edge: str, t, unit, settled, v_from: float, v_to: float):
+    def __init__(self, edge: str, t, unit, settled, v_from: float, v_to: float, *,
+                 span=None, rows=None):
         self.edge, self.t, self.v_from, self.v_to = edge, t, float(v_from), float(v_to)
-        self._unit, self._settled = unit, settled
+        # the solve's rows: ``rows[node]`` is a node's row (a solve shared by drivers that
+        # see the same tree, in its own node order; None: the node's own)
+        self._unit, self._settled, self._span, self._rows = unit, settled, span, rows
         self._made: dict[int, EdgeWave] = {}
         self._extremes: tuple | None = None
+
+    def _row(self, node):
+        """The solve's row of a node (or of a list of nodes). [1]"""
+        if self._rows is None:
+            return node
+        return self._rows[node] if np.ndim(node) == 0 else [self._rows[n] for n in node]
 
     def extremes(self) -> tuple[np.ndarray, np.ndarray]:
         """At every node at once: the peak (the high level plus the overshoot) and the dip
         (the undershoot below the low level, minus the low level), as
         :class:`EdgeWave` computes them one node at a time (computed once). [V]"""
         if self._extremes is None:
-            v = self.v_from + (self.v_to - self.v_from) * self._unit
+            # overshoot and undershoot read only the largest and smallest sample, and
+            # v_from + (v_to - v_from) u is monotonic in u (so in its rounding too): the
+            # edge at each node's smallest and largest u has the same two extremes
+            span = _span(self._unit) if self._span is None else self._span
+            if self._rows is not None:
+                span = span[self._rows]
+            v = self.v_from + (self.v_to - self.v_from) * span
             hi, lo = max(self.v_from, self.v_to), min(self.v_from, self.v_to)
             self._extremes = (self.v_to + np.asarray(wf.overshoot(v, hi)),
                               np.asarray(wf.undershoot(v, lo)) - self.v_to)
@@ -166,8 +182,7 @@ class PointWaves:
 
     def edge_times(self, nodes) -> np.ndarray:
         """The 10-90 % edge at the given nodes (NaN where it is not reached). [s]"""
-        nodes = list(nodes)
-        v = self.v_from + (self.v_to - self.v_from) * self._unit[nodes]
+        v = self.v_from + (self.v_to - self.v_from) * self._unit[self._row(list(nodes))]
         return np.asarray(wf.edge_time(self.t, v, self.v_to, v_initial=self.v_from),
                           dtype=float)
 
@@ -175,12 +190,16 @@ class PointWaves:
         """The edge at one node. [1]"""
         got = self._made.get(node)
         if got is None:
-            v = self.v_from + (self.v_to - self.v_from) * self._unit[node]
+            row = self._row(node)
+            v = self.v_from + (self.v_to - self.v_from) * self._unit[row]
             hi, lo = max(self.v_from, self.v_to), min(self.v_from, self.v_to)
-            got = EdgeWave(self.edge, self.t.copy(), v, self.v_from, self.v_to,
-                           float(wf.edge_time(self.t, v, self.v_to, v_initial=self.v_from)),
-                           float(wf.overshoot(v, hi)), float(wf.undershoot(v, lo)),
-                           bool(self._settled[node]))
+            # its record made again from the unit response when read, the same way (a
+            # line of many drivers reads the records of few of its edges)
+            got = UnitEdgeWave(self.edge, (self.t, self._unit[row]), self.v_from, self.v_to,
+                               float(wf.edge_time(self.t, v, self.v_to,
+                                                  v_initial=self.v_from)),
+                               float(wf.overshoot(v, hi)), float(wf.undershoot(v, lo)),
+                               bool(self._settled[row]), None)
             self._made[node] = got
         return got
 
@@ -226,22 +245,45 @@ def tree_edges(net: RouteNet, source: int, r_source: float, t_ramp: float,
     :func:`pinlib.physics.waveform.tree_response`; the circuit is linear, so the edge is
     ``v_from + (v_to - v_from) u(t)`` with ``u`` its unit response.
     """
-    key = ("pushline.tree_edge", tuple((a, b, s.z0, s.td, s.c) for a, b, s in net.sections),
-           source, r_source, t_ramp, tuple(caps), bool(distributed))
-    t, unit, settled = memo.remember(
-        key, lambda: _unit_tree(net, source, r_source, t_ramp, caps, distributed))
-    return PointWaves(edge, t, unit, settled, v_from, v_to)
+    tau, t_end = _record(net, r_source, t_ramp, caps, distributed)
+    # drivers that see the same tree (equal branches and pins) share one solve, its rows
+    # in its own node order
+    shape, order = shape_from(net.sections, caps, source)
+    key = ("pushline.tree_edge", shape, r_source, t_ramp, bool(distributed), tau, t_end)
+    t, unit, settled, span, solved = memo.remember(
+        key, lambda: (*_unit_tree(net, source, r_source, t_ramp, caps, distributed, tau,
+                                  t_end), order))
+    rows = None
+    if solved != order:
+        rows = np.empty(len(order), dtype=int)
+        rows[order] = solved
+    return PointWaves(edge, t, unit, settled, v_from, v_to, span=span, rows=rows)
+
+
+def _span(unit: np.ndarray) -> np.ndarray:
+    """Each node's smallest and largest sample, ``(nodes, 2)``. [1]"""
+    return np.stack([unit.min(axis=-1), unit.max(axis=-1)], axis=-1)
+
+
+def _record(net: RouteNet, r_source: float, t_ramp: float, caps: Sequence[float],
+            distributed: bool) -> tuple[float, float]:
+    """The time constant of ``r_source`` into the whole capacitance and the end of the
+    first record. [s, s]"""
+    c_total = float(sum(caps)) + sum(s.c for _, _, s in net.sections if s.td > 0)
+    tau = r_source * c_total
+    distributed = distributed and any(s.td > 0 for _, _, s in net.sections)
+    longest = net.longest_delay if distributed else 0.0
+    return tau, max(t_ramp + _ROUTE_SETTLE_TAUS * tau + _SETTLE_DELAYS * longest, 1e-12)
 
 
 def _unit_tree(net: RouteNet, source: int, r_source: float, t_ramp: float,
-               caps: Sequence[float], distributed: bool):
-    """The time grid, the unit response (0 -> 1) at every node, and whether each settled."""
+               caps: Sequence[float], distributed: bool, tau: float, t_end: float):
+    """The time grid, the unit response (0 -> 1) at every node, whether each settled and
+    each node's smallest and largest sample (:func:`_span`); ``tau`` and ``t_end`` are
+    :func:`_record`'s."""
     c_total = float(sum(caps)) + sum(s.c for _, _, s in net.sections if s.td > 0)
-    tau = r_source * c_total
     delays = [s.td for _, _, s in net.sections if s.td > 0]
     distributed = distributed and bool(delays)
-    longest = net.longest_delay if distributed else 0.0
-    t_end = max(t_ramp + _ROUTE_SETTLE_TAUS * tau + _SETTLE_DELAYS * longest, 1e-12)
     sections = [(a, b, s.z0 if s.td > 0 else 1.0, s.td) for a, b, s in net.sections]
     n_nodes = len(net.names)
     for _ in range(_ROUTE_EXTENSIONS + 1):
@@ -264,4 +306,4 @@ def _unit_tree(net: RouteNet, source: int, r_source: float, t_ramp: float,
         if settled.all():
             break
         t_end *= 3.0
-    return t, unit, settled
+    return t, unit, settled, _span(unit)

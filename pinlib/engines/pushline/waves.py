@@ -151,13 +151,14 @@ def simulate_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float,
         v = v_from + swing * unit
         return EdgeWave(edge, t.copy(), v, v_from, v_to, *_figures(t, v, v_from, v_to),
                         bool(settled), key)
-    return _UnitEdgeWave(edge, (t, unit), v_from, v_to, *figs, bool(settled), key)
+    return UnitEdgeWave(edge, (t, unit), v_from, v_to, *figs, bool(settled), key)
 
 
-class _UnitEdgeWave(EdgeWave):
-    """An :class:`EdgeWave` whose figures came from a batch: its record (``t``, ``v``) is
-    made from the unit response when first read, as :func:`simulate_edge` makes it (a
-    ranking reads only the figures of most edges)."""
+class UnitEdgeWave(EdgeWave):
+    """An :class:`EdgeWave` whose figures are given (from a batch, or worked out by a
+    route's :class:`~pinlib.engines.pushline.routes.PointWaves`): its record (``t``,
+    ``v``) is made from the unit response when first read, as :func:`simulate_edge`
+    makes it (a ranking, or a line of many drivers, reads the records of few edges)."""
 
     def __init__(self, edge: str, unit: tuple, v_from: float, v_to: float, t_edge: float,
                  overshoot: float, undershoot: float, settled: bool, key: tuple):

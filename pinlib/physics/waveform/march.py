@@ -339,15 +339,19 @@ def _march_single(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
     n_all = 1 + runs * block
     pad = int(net.port_delay.max()) + 1
     # the launched waves of the whole record when they fit, else a ring of one longest
-    # delay plus one run (a run reads back at most that far, and writes after reading)
+    # delay plus one run (a run reads back at most that far, and writes after reading),
+    # rounded up to whole runs: run j's places in it repeat every `laps` runs
     full = port_node.size * (pad + n_all) <= _MAX_BUFFER_ELEMENTS
-    size = pad + n_all if full else pad + block
+    laps = -(-(pad + block) // block)
+    size = pad + n_all if full else laps * block
     launched = np.zeros((port_node.size, size))
     flat_launched = launched.reshape(-1)
     reach = pad - 1 - net.port_delay[:, None] + np.arange(block + 1)[None, :]
     base = net.port_partner[:, None] * size                              # (P, 1)
     flat = base + reach                                                  # (P, block + 1)
     ahead = pad + np.arange(block)                                       # ring writes
+    reads: list = [None] * (0 if full else laps)  # each lap's places, made when first met
+    writes: list = [None] * len(reads)
     frac = net.port_frac[:, None] if np.any(net.port_frac > 0.0) else None
     weight = net.incidence * (2.0 * net.port_g[:, 0])[None, :]           # (N, P)
     src_cur = np.empty(n_all)
@@ -365,8 +369,10 @@ def _march_single(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
         state[src, 0] = v_forced[0]
     volts[:, 0] = state[:, 0]
     column = state[:, :, None]
-    for n in range(1, n_all, block):
-        got = flat_launched.take(flat + n if full else base + (reach + n) % size)
+    for j, n in enumerate(range(1, n_all, block)):
+        if not full and reads[j % laps] is None:
+            reads[j % laps], writes[j % laps] = base + (reach + n) % size, (ahead + n) % size
+        got = flat_launched.take(flat + n if full else reads[j % laps])
         inc = got[:, 1:]
         if frac is not None:
             inc = inc + frac * (got[:, :-1] - inc)
@@ -380,7 +386,7 @@ def _march_single(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
             np.subtract(w.take(port_node, axis=0), inc,
                         out=launched[:, pad + n:pad + n + block])
         else:
-            launched[:, (ahead + n) % size] = w.take(port_node, axis=0) - inc
+            launched[:, writes[j % laps]] = w.take(port_node, axis=0) - inc
         state[:, 0] = w[:, -1]
         state[:, 1] = cur[:, -1]
     return volts[:, :n_t, None]

@@ -157,7 +157,9 @@ def _tree(t, vdd, t_ramp, r_source, sections, node_caps, source, edge, *,
     volts = march(net, v_src, n_t)                              # (merged, n, B)
     if sign < 0:
         volts = vdd_b - volts
-    v = np.transpose(volts[node_of], (2, 0, 1)).reshape(batch_shape + (n_nodes, n_t))
+    if n_merged < n_nodes:  # joined nodes share their solver node's waveform
+        volts = volts[node_of]
+    v = np.transpose(volts, (2, 0, 1)).reshape(batch_shape + (n_nodes, n_t))
     return TreeWaveform(t, v)
 
 
