@@ -19,7 +19,7 @@ from pinlib.core.errors import ValidityWarning
 from pinlib.engines.coupling import pair_at
 from pinlib.engines.crosstalk import coupling_checks, noise_batch, victim_noise
 from pinlib.engines.dispatch import check_design
-from pinlib.model.design import load_design
+from pinlib.model.design import Aggressor, load_design
 from pinlib.present.report import format_text
 
 DESIGN = """\
@@ -77,6 +77,15 @@ def test_a_tight_run_fails_on_scl_with_its_sources(tight):
     assert any(k.id == "crosstalk-glitch" and k.limit is None for k in failing)
     assert all(k.source for k in c.checks)
     assert all("UM10204" in k.source for k in c.checks)
+
+
+def test_a_described_edge_is_the_solvers_aggressor_as_read(tight):
+    design, result = tight
+    a = design.couplings[0].aggressor
+    # from the design text above: the file's source_resistance and (absent)
+    # load_capacitance are the type's r_source and c_far
+    assert a == Aggressor(swing=3.3, edge_time=0.5e-9, r_source=20.0, c_far=0.0)
+    assert result.couplings[0].workings.aggressor is a
 
 
 def test_minimum_spacing_and_maximum_length_are_edges_of_passing(tight):

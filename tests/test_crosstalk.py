@@ -8,12 +8,12 @@ import pytest
 
 from pinlib.core.errors import InputError, ValidityWarning
 from pinlib.engines.crosstalk import (
-    Aggressor,
     Victim,
     coupling_checks,
     minimum_spacing,
     victim_noise,
 )
+from pinlib.model.design import Aggressor
 from pinlib.physics.coupled import coupled_microstrip
 
 H = 0.18e-3

@@ -12,6 +12,7 @@ from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
+import pytest
 
 from pinlib.engines import ppworst
 from pinlib.engines.dispatch import check_design
@@ -98,3 +99,29 @@ def test_shared_line_analyses_change_no_number(monkeypatch):
     # every line analysed afresh at every corner: derived from the same engine
     monkeypatch.setattr(line, "_line_key", lambda *a: None)
     assert evaluate_bus(bus, d).to_json() == shared
+
+
+def _assembled(bus, d):
+    """The worst case assembled from the nominal board alone (every check's worst corner
+    the nominal one)."""
+    nominal = evaluate_board(bus, d)
+    specs = ppworst.parameter_specs(bus)
+    m = len(ppworst.check_names(bus, nominal))
+    zero = (0.0,) * len(specs)
+    figs = {f: nominal.figures[f].value for f in ppworst._LOWEST_FIGURES
+            if f in nominal.figures}
+    seen = {zero: (np.zeros(m), np.ones(m, dtype=bool), figs, None)}
+    return nominal, ppworst._assemble(bus, nominal, specs, np.zeros((m, len(specs))), seen)
+
+
+def test_assembling_walks_every_named_check_or_raises(monkeypatch):
+    d = _design()
+    bus = d.buses[0]
+    nominal, got = _assembled(bus, d)
+    assert [c.to_json() for c in got.checks] == [c.to_json() for c in nominal.checks]
+    # a walk out of step with the names is a RuntimeError, under python -O too
+    names = ppworst.check_names
+    monkeypatch.setattr(ppworst, "check_names",
+                        lambda b, r: [*names(b, r), {"name": "extra", "engine": None}])
+    with pytest.raises(RuntimeError, match=r"checks assembled against \d+ named \(.*extra\)"):
+        _assembled(bus, d)

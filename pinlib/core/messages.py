@@ -21,6 +21,9 @@ due, a number where a table is) is named by the record layer (:mod:`pinlib.core.
 in the words below.  Two ``ValueError`` texts of the converted modules are not here because no file
 or command line reaches them, only a program calling pinlib wrongly: ``parse`` with an
 unknown expected unit, and ``Sourced.at`` of a relative threshold without a supply.
+A ``RuntimeError`` is not here either: it is a bug in pinlib, two of its own walks that
+disagree (the open-drain wording against its batch's checks), and its text names the
+ids beside the code that finds it.
 """
 
 from __future__ import annotations

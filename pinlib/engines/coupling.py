@@ -33,7 +33,6 @@ import numpy as np
 from pinlib.core.errors import ValidityWarning
 from pinlib.core.quantity import format_si
 from pinlib.engines.crosstalk import (
-    Aggressor,
     Victim,
     coupling_checks,
     edge_of_passing,
@@ -41,7 +40,7 @@ from pinlib.engines.crosstalk import (
     noise_of_waves,
     victim_waves,
 )
-from pinlib.model.design import Coupling, Design, Edge
+from pinlib.model.design import Aggressor, Coupling, Design
 from pinlib.model.result import BusResult, CouplingResult
 from pinlib.physics.coupled import RAMP_FROM_10_90, coupled_microstrip, coupled_stripline
 
@@ -138,8 +137,8 @@ def _level_source(rx, name: str, lim) -> str:
 def aggressor_of(coupling: Coupling, results: dict[str, BusResult]) -> Aggressor:
     """The aggressor's edge: described, or from its line's analysis."""
     a = coupling.aggressor
-    if isinstance(a, Edge):
-        return Aggressor(a.swing, a.edge_time, a.source_resistance, a.load_capacitance)
+    if isinstance(a, Aggressor):
+        return a
     bus_id, signal = a
     w = results[bus_id].workings
     lines = w.lines if hasattr(w, "lines") else w

@@ -2,8 +2,9 @@
 the victim, its checks, and the smallest spacing at which every check passes.
 
 The pair is solved in time with its real terminations (:mod:`pinlib.physics.coupledwave`):
-the aggressor a ramp through its source resistance at the near end, a receiver at the
-far end; the victim its pull-up to VDD and, held low, its sink, at the ends given, and
+the aggressor (:class:`~pinlib.model.design.coupling.Aggressor`, the type of a design's
+described edge too) a ramp through its source resistance at the near end, a receiver at
+the far end; the victim its pull-up to VDD and, held low, its sink, at the ends given, and
 a receiver's capacitance at each end. The system is linear, so the falling edge's noise
 is the rising edge's with its sign turned: each held state takes the polarity that
 pushes it toward the threshold.
@@ -31,28 +32,18 @@ from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.quantity import format_si
 from pinlib.core.worklimits import MAX_COUPLED_STEPS
+from pinlib.model.design.coupling import Aggressor
 from pinlib.model.result import Check, check_max, check_min
 from pinlib.physics.coupled import RAMP_FROM_10_90, CoupledLine
 from pinlib.physics.coupledwave import EndLoads, coupled_waves_batch
 from pinlib.physics.lines.model import C0
 
-__all__ = ["Aggressor", "Victim", "EndNoise", "victim_noise", "victim_waves", "noise_batch",
+__all__ = ["Victim", "EndNoise", "victim_noise", "victim_waves", "noise_batch",
            "noise_of_waves",
            "coupling_checks", "edge_of_passing", "minimum_spacing", "maximum_length"]
 
 _ENDS = ("near", "far")
 _STEPS_PER_EDGE = 50  # time steps over the aggressor's ramp (common practice, no source)
-
-
-@dataclass(frozen=True)
-class Aggressor:
-    """The neighbour's edge: swing [V], 10-90 % edge time [s], source resistance [Ω] at
-    the near end, receiver capacitance [F] at the far end."""
-
-    swing: float
-    edge_time: float
-    r_source: float
-    c_far: float = 0.0
 
 
 @dataclass(frozen=True)

@@ -276,7 +276,10 @@ def _assemble(bus, nominal, specs, worst, seen) -> BusResult:
     for c in nominal.checks:
         out.checks.append(worst_check(j, c))
         j += 1
-    assert j == len(names)
+    if j != len(names):  # the walk above must be flat_checks', whose order the rows follow
+        raise RuntimeError(
+            f"push-pull worst case of bus {bus.id!r}: {j} checks assembled against "
+            f"{len(names)} named ({', '.join(nm['name'] for nm in names)})")
     for fig in _LOWEST_FIGURES:
         if fig in out.figures and out.figures[fig].value is not None:
             vals = [row[2][fig] for row in seen.values() if fig in row[2]]

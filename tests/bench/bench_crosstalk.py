@@ -16,12 +16,12 @@ import numpy as np
 
 from pinlib.core.errors import ValidityWarning
 from pinlib.engines.crosstalk import (
-    Aggressor,
     Victim,
     coupling_checks,
     minimum_spacing,
     victim_noise,
 )
+from pinlib.model.design import Aggressor
 from pinlib.physics.coupled import coupled_microstrip
 from tests.bench.common import Result, median_time
 

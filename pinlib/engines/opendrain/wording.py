@@ -22,7 +22,14 @@ from pinlib.model.result import STATUSES, Check, Group
 
 
 class Words:
-    """One segment while its checks are worded: the batch's checks in their order."""
+    """One segment while its checks are worded: the batch's checks in their order.
+
+    The wording must walk the batch's checks in the batch's order and word every one;
+    where it does not (a check added to the batch without its wording, or worded in
+    another place), :meth:`take` and :meth:`finish` raise a RuntimeError naming the
+    check ids: a bug in pinlib, not a problem of the design, and never a check worded
+    with another check's numbers.
+    """
 
     def __init__(self, ctx, seg_in: SegmentInputs, checks: list):
         self.ctx, self.seg_in, self.lim = ctx, seg_in, ctx.lim
@@ -36,11 +43,27 @@ class Words:
         return None
 
     def take(self, id: str):
-        """The next batch check, which must be ``id``."""
+        """The next batch check, which must be ``id`` (else a RuntimeError)."""
+        if self.k >= len(self.checks) or self.checks[self.k].id != id:
+            got = repr(self.checks[self.k].id) if self.k < len(self.checks) else "none left"
+            raise RuntimeError(
+                f"open-drain wording out of step with the batch in segment "
+                f"{self.seg_in.segment.id!r}: wording check {id!r} at place {self.k}, "
+                f"the batch has {got} (its checks: {self._ids()})")
         chk = self.checks[self.k]
-        assert chk.id == id, (id, chk.id)  # the same checks in the same order
         self.k += 1
         return chk
+
+    def finish(self) -> None:
+        """A RuntimeError when a batch check was left without its wording."""
+        if self.k != len(self.checks):
+            raise RuntimeError(
+                f"open-drain wording left batch checks unworded in segment "
+                f"{self.seg_in.segment.id!r}: {self._ids(self.k)} (its checks: "
+                f"{self._ids()})")
+
+    def _ids(self, start: int = 0) -> str:
+        return ", ".join(c.id for c in self.checks[start:])
 
     def r_eff(self, signal: str) -> float:
         """Every pull-up of a line in parallel, nominal, as the batch worked it out. [Ω]"""

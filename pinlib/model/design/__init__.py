@@ -28,8 +28,8 @@ from pinlib.model.design.build import (  # noqa: F401
     Design,
 )
 from pinlib.model.design.coupling import (  # noqa: F401
+    Aggressor,
     Coupling,
-    Edge,
 )
 from pinlib.model.design.load import (  # noqa: F401
     design_from_text,
@@ -89,7 +89,7 @@ __all__ = [
     "Line",
     "Bus",
     "Coupling",
-    "Edge",
+    "Aggressor",
     "Design",
     "load_design",
     "design_from_text",

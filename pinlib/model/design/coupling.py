@@ -4,8 +4,9 @@ line (issue 17), resolved against the design's buses and geometries.
 A coupling names its victim as ``"BUS.SIGNAL"`` (an open-drain bus's ``sda`` or ``scl``;
 ``segment`` picks one segment of a bus that has several, the first by default) and its
 aggressor either as ``"BUS.SIGNAL"`` (a routed push-pull line: the engines take its edge,
-swing and series resistor) or as a described edge (:class:`Edge`).  A misspelt bus or
-signal is answered with the closest name the design has.
+swing and series resistor) or as a described edge (:class:`Aggressor`, the crosstalk
+solver's input too).  A misspelt bus or signal is answered with the closest name the
+design has.
 """
 
 from __future__ import annotations
@@ -17,18 +18,32 @@ from pinlib.core import nearby, protocols
 from pinlib.model.design.objects import Bus, Geometry
 from pinlib.model.design.raw import RawCoupling, RawEdge, RawGeometry
 
-__all__ = ["Edge", "Coupling", "resolve_couplings"]
+__all__ = ["Aggressor", "Coupling", "resolve_couplings"]
 
 
 @dataclass(frozen=True)
-class Edge:
-    """A described aggressor: swing [V], 10-90 % edge time [s], source resistance [Ω],
-    load capacitance at its far end [F]."""
+class Aggressor:
+    """An aggressor's edge, as a coupling describes it and as the crosstalk solver
+    (:mod:`pinlib.engines.crosstalk`) takes it.
+
+    Attributes
+    ----------
+    swing : float
+        The edge's swing. [V]
+    edge_time : float
+        Its 10-90 % time. [s]
+    r_source : float
+        The driver's output resistance plus any series resistor, at the near end (the
+        design file's ``source_resistance``). [Ω]
+    c_far : float
+        What the aggressor drives at its far end (the design file's
+        ``load_capacitance``). [F]
+    """
 
     swing: float
     edge_time: float
-    source_resistance: float
-    load_capacitance: float = 0.0
+    r_source: float
+    c_far: float = 0.0
 
 
 @dataclass(frozen=True)
@@ -39,7 +54,7 @@ class Coupling:
     ----------
     victim_bus, victim_signal, segment : str
         The open-drain line (its bus, ``sda``/``scl``, the segment it runs in).
-    aggressor : tuple of (bus id, signal) or Edge
+    aggressor : tuple of (bus id, signal) or Aggressor
         A push-pull line of the design, or a described edge.
     spacing, length : float
         Edge-to-edge gap and the length the two run side by side. [m]
@@ -52,7 +67,7 @@ class Coupling:
     victim_bus: str
     victim_signal: str
     segment: str
-    aggressor: tuple | Edge
+    aggressor: tuple | Aggressor
     spacing: float
     length: float
     geometry: Geometry
@@ -71,7 +86,7 @@ class Coupling:
 
     @property
     def aggressor_name(self) -> str:
-        if isinstance(self.aggressor, Edge):  # the described edge of coupling N
+        if isinstance(self.aggressor, Aggressor):  # the described edge of coupling N
             return f"edge-{self.loc[1] + 1}" if len(self.loc) > 1 else "edge"
         return ".".join(self.aggressor)
 
@@ -150,15 +165,16 @@ def resolve_couplings(raws, buses, geometries: dict[str, Geometry], err) -> tupl
         segment = _segment(rc, by_id[vb], loc, err)
         if isinstance(rc.aggressor, RawEdge):
             a = rc.aggressor
-            aggressor: tuple | Edge = Edge(a.swing, a.edge_time, a.source_resistance,
-                                           a.load_capacitance)
+            aggressor: tuple | Aggressor = Aggressor(
+                a.swing, a.edge_time, r_source=a.source_resistance,
+                c_far=a.load_capacitance)
         else:
             aggressor = _line(rc.aggressor, loc + ("aggressor",), by_id, err,
                               open_drain=False)
         geometry = _geometry(rc, geometries, loc + ("geometry",), err)
         c = Coupling(vb, vs, segment, aggressor, rc.spacing, rc.parallel_length, geometry,
                      rc.spacing_tolerance or 0.0, rc.length_tolerance or 0.0, loc)
-        if c.id in seen and not isinstance(aggressor, Edge):
+        if c.id in seen and not isinstance(aggressor, Aggressor):
             raise err(M.COUPLING_TWICE, loc + ("aggressor",), value=c.id,
                       hint="give one run the total parallel length")
         seen.add(c.id)

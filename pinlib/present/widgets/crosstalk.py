@@ -11,7 +11,7 @@ from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.quantity import format_si
 from pinlib.engines.coupling import evaluate_coupling
 from pinlib.engines.dispatch import evaluate_bus
-from pinlib.model.design import Edge, load_design
+from pinlib.model.design import Aggressor, load_design
 from pinlib.present import charts, plotdata
 from pinlib.present.widgets.common import (
     ChartView,
@@ -88,7 +88,7 @@ class CrosstalkExplorer(_Panel):
                              if self.design.couplings else "a design with [[coupling]]")
         self.coupling = self.design.couplings[coupling]
         needed = {self.coupling.victim_bus}
-        if not isinstance(self.coupling.aggressor, Edge):
+        if not isinstance(self.coupling.aggressor, Aggressor):
             needed.add(self.coupling.aggressor[0])
         self.buses = {b.id: evaluate_bus(b, self.design) for b in self.design.buses
                       if b.id in needed}
@@ -133,9 +133,9 @@ class CrosstalkExplorer(_Panel):
     def varied(self):
         """The coupling as the sliders set it (a described edge where the edge moved)."""
         c = replace(self.coupling, spacing=self.spacing.value, length=self.length.value)
-        if self.edge_time.value != self.aggressor.edge_time or isinstance(c.aggressor, Edge):
-            a = self.aggressor
-            c = replace(c, aggressor=Edge(a.swing, self.edge_time.value, a.r_source, a.c_far),
+        if (self.edge_time.value != self.aggressor.edge_time
+                or isinstance(c.aggressor, Aggressor)):
+            c = replace(c, aggressor=replace(self.aggressor, edge_time=self.edge_time.value),
                         loc=self.coupling.loc)
         return c
 
