@@ -12,7 +12,10 @@ A small batch (corners, a short Monte Carlo run) is evaluated by the engine itse
 variant by variant (:func:`pinlib.engines.pushpull.evaluate_board` on the varied bus;
 identical variants once), so that every margin is the engine's.  The line engine picks
 its time grid from each variant's own time constants and delays, so the waveform
-solvers cannot share one batched solve across variants.  A large batch is evaluated
+solvers cannot share one batched solve across variants.  The corner boards of an SPI
+bus (the corner study's) are evaluated instead as the engine's own corner search does,
+as arrays (:func:`build_rows` over :func:`pinlib.engines.ppcorners.corner_rows`), the
+same numbers board by board.  A large batch is evaluated
 from tables of the engine over the tolerance box (:mod:`pinlib.engines.pptable`), built
 once per run, verified against the engine, with the engine taking every board outside
 the box, in a cell of the table a line's results jump or bend across, or close to

@@ -1,5 +1,7 @@
 """An SPI bus's checks at many corners of its tolerances, as arrays, equal to the engine
-board by board (:func:`corner_rows`, for :func:`pinlib.engines.ppworst.at_worst_corners`).
+board by board (:func:`corner_rows`, for :func:`pinlib.engines.ppworst.at_worst_corners`
+and, through :func:`pinlib.engines.ppbatch.build_rows`, for the corner study
+:func:`pinlib.studies.whatif.corners`).
 
 A board of the worst-corner search differs from the next only in its factors, and what
 the engine makes of it falls apart along them:
@@ -22,7 +24,8 @@ the engine makes of it falls apart along them:
 A bus whose nominal result is not laid out that way (a check the budget did not make, a
 peripheral whose flights differ in kind between boards) is left to the engine board by
 board (:func:`corner_rows` or the evaluator returns None).  GPIO buses are too.
-``tests/test_ppcorners.py`` holds the arrays to the engine's boards.
+``tests/test_ppcorners.py`` holds the arrays to the engine's boards, and
+``tests/test_corners_arrays.py`` the corner study's result to its board-by-board path.
 """
 
 from __future__ import annotations

@@ -148,7 +148,8 @@ def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
         above it, screen each parameter alone at both ends and improve the combined
         corner one flip at a time.  A push-pull bus takes the engine's own search
         (:func:`pinlib.engines.ppworst.search`), so that its corners and its checks'
-        statuses agree. [1]
+        statuses agree, and an SPI bus's boards the engine's arrays
+        (:func:`pinlib.engines.ppcorners.corner_rows`). [1]
     progress : bool, callable or None, optional
         Progress bar over the corner boards evaluated. [1]
 
