@@ -132,3 +132,13 @@ def test_rows_at_the_nominal_board_and_a_floor(monkeypatch):
     u[0, i] = -1.0
     rows(u)
     assert 0.25 in seen and 0.0 not in seen   # common practice, no source: max(1 - 1.0, 0.25)
+
+
+def test_results_handed_in_equal_results_evaluated_here():
+    """`pinlib check --corners` hands the study the buses it has just checked."""
+    from pinlib.engines.dispatch import check_design
+
+    d = load_design(DEMO)
+    here = cornersearch.corners(d).to_json()
+    given = cornersearch.corners(d, results={b.id: b for b in check_design(d).buses})
+    assert given.to_json() == here   # derived from the engine itself, the same buses

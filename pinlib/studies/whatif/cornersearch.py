@@ -136,7 +136,7 @@ def _margins(bb: ob.BusBatch) -> np.ndarray:
 
 
 def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
-            progress=None) -> CornersResult:
+            progress=None, results: dict | None = None) -> CornersResult:
     """The worst corner of each check of the design's buses.
 
     Parameters
@@ -152,6 +152,10 @@ def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
         (:func:`pinlib.engines.ppcorners.corner_rows`). [1]
     progress : bool, callable or None, optional
         Progress bar over the corner boards evaluated. [1]
+    results : dict, optional
+        The engine's result of each bus by id, when the caller has it (the buses of
+        :func:`pinlib.engines.dispatch.check_design`); else each bus is evaluated
+        here. [1]
 
     Returns
     -------
@@ -159,7 +163,7 @@ def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
         Per check: the margin at its worst corner and the parameters (at which end)
         that set it.
     """
-    nominal = _nominal(design)
+    nominal = _nominal(design) if results is None else results
     collected = _collected(design)
     out, methods, per_bus = [], {}, {}
     sampled = [b for b in design.buses if b.id in collected or b.protocol in PUSH_PULL_PROTOCOLS]
