@@ -12,7 +12,10 @@ A small batch (corners, a short Monte Carlo run) is evaluated by the engine itse
 variant by variant (:func:`pinlib.engines.pushpull.evaluate_board` on the varied bus;
 identical variants once), so that every margin is the engine's.  The line engine picks
 its time grid from each variant's own time constants and delays, so the waveform
-solvers cannot share one batched solve across variants.  A large batch is evaluated
+solvers cannot share one batched solve across variants.  The corner boards of an SPI
+bus (the corner study's) are evaluated instead as the engine's own corner search does,
+as arrays (:func:`build_rows` over :func:`pinlib.engines.ppcorners.corner_rows`), the
+same numbers board by board.  A large batch is evaluated
 from tables of the engine over the tolerance box (:mod:`pinlib.engines.pptable`), built
 once per run, verified against the engine, with the engine taking every board outside
 the box, in a cell of the table a line's results jump or bend across, or close to
@@ -53,6 +56,7 @@ __all__ = [
     "flat_checks",
     "number_or_nan",
     "build",
+    "build_rows",
     "engine_note",
     "WHY",
 ]
@@ -189,6 +193,7 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
     where = np.flatnonzero(todo)
     rows, inverse = np.unique(table[where], axis=0, return_inverse=True)
     inverse = np.asarray(inverse).reshape(-1)
+    arrays = (margin, value, limit, status)
     for r, row in enumerate(rows):
         got = dict(zip(keys, row, strict=True))
         res = nominal if not keys else pp.evaluate_board(vary_bus(bus, got.get, chosen),
@@ -196,12 +201,68 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
         at = where[inverse == r]
         for nm, (_, c) in zip(check_names(bus, res), flat_checks(res), strict=True):
             j = index.get(nm["name"])
-            if j is None:
-                continue
-            margin[at, j] = number_or_nan(c.margin)
-            value[at, j] = number_or_nan(c.value)
-            limit[at, j] = number_or_nan(c.limit)
-            status[at, j] = STATUS_CODES[c.status]
+            if j is not None:
+                _put(arrays, at, j, c)
+    return PpBatch(n, names, _items(names, arrays), notes, int(where.size), why)
+
+
+def build_rows(bus: Bus, nominal, u: np.ndarray, boards) -> PpBatch | None:
+    """The checks of the corner boards ``u`` of a push-pull bus from an evaluator over
+    arrays of boards (:func:`pinlib.engines.ppcorners.corner_rows`): the same
+    :class:`PpBatch` as :func:`build` at their factors, check by check the engine's.
+
+    Parameters
+    ----------
+    bus : Bus
+        The bus. [1]
+    nominal : BusResult
+        The engine's result of the bus (names the checks, as in :func:`build`). [1]
+    u : numpy.ndarray
+        Boards, shape ``(n, k)``: the end of each parameter of :func:`parameter_specs`
+        (-1, 0 or +1). [1]
+    boards : callable
+        ``boards(u)``: the :class:`~pinlib.engines.ppworst.BoardRows` of distinct boards
+        in the order of ``check_names(bus, nominal)``, or None. [1]
+
+    Returns
+    -------
+    PpBatch or None
+        None where ``boards`` does not serve these boards (:func:`build` then
+        evaluates them board by board).
+    """
+    names = check_names(bus, nominal)
+    n, m = len(u), len(names)
+    uniq, inverse = np.unique(np.asarray(u, dtype=float).reshape(n, -1), axis=0,
+                              return_inverse=True)
+    got = boards(uniq) if n else None
+    if got is None:
+        return None
+    d = len(uniq)
+    arrays = (np.full((d, m), np.nan), np.full((d, m), np.nan), np.full((d, m), np.nan),
+              np.zeros((d, m), dtype=int))
+    for i in range(d):
+        for j in np.flatnonzero(got.present[i]):
+            _put(arrays, i, int(j), got.check(i, int(j)))
+    inverse = np.asarray(inverse).reshape(-1)
+    arrays = tuple(a[inverse] for a in arrays)
+    return PpBatch(n, names, _items(names, arrays), [], d, {})
+
+
+def _put(arrays: tuple, at, j: int, c) -> None:
+    """Check ``c`` of one board as check ``j`` of the boards ``at`` (margin, value,
+    limit, status: NaN for none or a yes/no value)."""
+    margin, value, limit, status = arrays
+    margin[at, j] = number_or_nan(c.margin)
+    value[at, j] = number_or_nan(c.value)
+    limit[at, j] = number_or_nan(c.limit)
+    status[at, j] = STATUS_CODES[c.status]
+
+
+def _items(names: list, arrays: tuple) -> list:
+    """One :class:`BatchCheck` per check of ``names`` from the arrays of :func:`_put`
+    (value and limit only where the nominal check's value is a number, a margin only
+    where it has one)."""
+    margin, value, limit, status = arrays
     items: list[Any] = []
     for j, nm in enumerate(names):
         ec = nm["engine"]
@@ -211,7 +272,7 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
             ec.id, "", nm["signal"], value[:, j] if has_value else None,
             limit[:, j] if has_value else None, margin[:, j] if has_margin else None,
             status[:, j], ec.unit))
-    return PpBatch(n, names, items, notes, int(where.size), why)
+    return items
 
 
 def engine_note(bus_id: str, why: dict) -> str:

@@ -1,5 +1,7 @@
 """An SPI bus's checks at many corners of its tolerances, as arrays, equal to the engine
-board by board (:func:`corner_rows`, for :func:`pinlib.engines.ppworst.at_worst_corners`).
+board by board (:func:`corner_rows`, for :func:`pinlib.engines.ppworst.at_worst_corners`
+and, through :func:`pinlib.engines.ppbatch.build_rows`, for the corner study
+:func:`pinlib.studies.whatif.corners`).
 
 A board of the worst-corner search differs from the next only in its factors, and what
 the engine makes of it falls apart along them:
@@ -22,7 +24,8 @@ the engine makes of it falls apart along them:
 A bus whose nominal result is not laid out that way (a check the budget did not make, a
 peripheral whose flights differ in kind between boards) is left to the engine board by
 board (:func:`corner_rows` or the evaluator returns None).  GPIO buses are too.
-``tests/test_ppcorners.py`` holds the arrays to the engine's boards.
+``tests/test_ppcorners.py`` holds the arrays to the engine's boards, and
+``tests/test_corners_arrays.py`` the corner study's result to its board-by-board path.
 """
 
 from __future__ import annotations
@@ -54,8 +57,9 @@ __all__ = ["corner_rows"]
 _FIELDS = ("sclk", "copi", "cs", "cipo")
 
 
-def corner_rows(bus: Bus, design: Design,
-                nominal: BusResult) -> Callable[[np.ndarray], BoardRows | None] | None:
+def corner_rows(bus: Bus, design: Design, nominal: BusResult, *,
+                floor: float | None = None
+                ) -> Callable[[np.ndarray], BoardRows | None] | None:
     """The evaluator of many corner boards of an SPI bus as arrays.
 
     Parameters
@@ -65,14 +69,20 @@ def corner_rows(bus: Bus, design: Design,
     design : Design
         The design. [1]
     nominal : BusResult
-        The engine's result of the bus as designed (``evaluate_board``). [1]
+        The engine's result of the bus as designed (``evaluate_board``), or its result
+        at the worst corners (``evaluate_bus``: the same checks by name, the nominal
+        board's ``workings`` and, equal at every corner, its ``f-max`` checks). [1]
+    floor : float, optional
+        The smallest factor ``1 + tolerance·u`` a parameter takes (the what-if studies'
+        floor); without it, none. [1]
 
     Returns
     -------
     callable or None
         ``rows(u)`` for boards ``u`` of shape ``(n, k)`` (each entry the end of a
-        parameter of :func:`~pinlib.engines.ppvariant.parameter_specs`, -1, 0 or +1; no
-        row all 0): a :class:`~pinlib.engines.ppworst.BoardRows` in the order of
+        parameter of :func:`~pinlib.engines.ppvariant.parameter_specs`, -1, 0 or +1; a
+        row all 0 is the nominal board): a :class:`~pinlib.engines.ppworst.BoardRows` in
+        the order of
         ``check_names(bus, nominal)``, or None where the boards' results are not laid
         out as the nominal's.  None for a bus it does not serve (not SPI, or a nominal
         result whose bus checks are not the budget's terms, the parts' ``f-max`` and
@@ -88,15 +98,16 @@ def corner_rows(bus: Bus, design: Design,
             or own[n_terms:n_terms + n_f] != ["f-max"] * n_f
             or any(i != "supply-range" for i in own[n_terms + n_f:])):
         return None
-    return _Corners(bus, design, nominal, sa, n_line).rows
+    return _Corners(bus, design, nominal, sa, n_line, floor).rows
 
 
 class _Corners:
     """What :func:`corner_rows` keeps of the nominal board between calls."""
 
     def __init__(self, bus: Bus, design: Design, nominal: BusResult, sa: SpiAnalysis,
-                 n_line: int):
+                 n_line: int, floor: float | None = None):
         self.bus, self.design, self.sa, self.n_line = bus, design, sa, n_line
+        self.floor = floor
         self.specs = parameter_specs(bus)
         self.chosen = chosen_resistors(nominal)
         self.index = {nm["name"]: j for j, nm in enumerate(check_names(bus, nominal))}
@@ -112,10 +123,14 @@ class _Corners:
         uniq, inverse = np.unique(u[:, cols], axis=0, return_inverse=True)
         buses = []
         for row in uniq:
-            f = {self.specs[i][-1]: 1.0 + self.specs[i][3] * x
+            f = {self.specs[i][-1]: self._factor(self.specs[i][3], x)
                  for i, x in zip(cols, row, strict=True)}
             buses.append(vary_bus(self.bus, f.get, self.chosen))
         return buses, np.asarray(inverse).reshape(-1)
+
+    def _factor(self, tolerance: float, x: float) -> float:
+        f = 1.0 + tolerance * x
+        return f if self.floor is None else max(f, self.floor)
 
     def rows(self, u: np.ndarray) -> BoardRows | None:
         """The checks of the boards ``u`` (see :func:`corner_rows`)."""

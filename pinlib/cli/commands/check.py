@@ -204,7 +204,7 @@ def _run_one(args) -> int:
         for err in damaged:  # named, then ignored: the check itself still runs
             print(f"pinlib: warning: {err.message}; "
                   + M.SNAPSHOT_IGNORED.format(design=args.design), file=sys.stderr)
-    extra = _what_if(design, args)
+    extra = _what_if(design, args, result)
     if args.json:
         out = result.to_json()
         if changes is not None:
@@ -280,14 +280,16 @@ def _warn_implausible(design) -> None:
             print(f"pinlib: warning: {pid}: " + w.message, file=sys.stderr)
 
 
-def _what_if(design, args) -> dict:
-    """Corners and Monte Carlo when asked: {"corners": ..., "monte_carlo": ...}."""
+def _what_if(design, args, result) -> dict:
+    """Corners and Monte Carlo when asked: {"corners": ..., "monte_carlo": ...}; the
+    corners start from ``result``, the design's checked just before."""
     out = {}
     progress = True if getattr(args, "progress", False) else None
     if getattr(args, "corners", False):
         from pinlib.studies.whatif import corners
 
-        out["corners"] = corners(design, progress=progress)
+        out["corners"] = corners(design, progress=progress,
+                                 results={b.id: b for b in result.buses})
     if getattr(args, "monte_carlo", None) is not None:
         from pinlib.studies.whatif import monte_carlo
 

@@ -14,12 +14,21 @@ from pinlib.core.progress import progress_bar
 from pinlib.core.protocols import PUSH_PULL_PROTOCOLS
 from pinlib.engines import ppbatch as ppb
 from pinlib.engines import ppworst as ppw
+from pinlib.engines.memo import run_scope
 from pinlib.engines.opendrain import batch as ob
+from pinlib.engines.ppcorners import corner_rows
 from pinlib.model.design import Design
 from pinlib.model.result import json_number
 from pinlib.studies.whatif.checknames import _names, _not_sampled
 from pinlib.studies.whatif.mcresult import _fmt_margin, find_check
-from pinlib.studies.whatif.tolerances import Parameter, Sampled, _collected, _nominal, parameters
+from pinlib.studies.whatif.tolerances import (
+    _FLOOR,
+    Parameter,
+    Sampled,
+    _collected,
+    _nominal,
+    parameters,
+)
 
 #: Up to this many parameters on a bus, corners tries every vertex (2**k).
 EXHAUSTIVE_LIMIT = 12
@@ -127,7 +136,7 @@ def _margins(bb: ob.BusBatch) -> np.ndarray:
 
 
 def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
-            progress=None) -> CornersResult:
+            progress=None, results: dict | None = None) -> CornersResult:
     """The worst corner of each check of the design's buses.
 
     Parameters
@@ -139,9 +148,14 @@ def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
         above it, screen each parameter alone at both ends and improve the combined
         corner one flip at a time.  A push-pull bus takes the engine's own search
         (:func:`pinlib.engines.ppworst.search`), so that its corners and its checks'
-        statuses agree. [1]
+        statuses agree, and an SPI bus's boards the engine's arrays
+        (:func:`pinlib.engines.ppcorners.corner_rows`). [1]
     progress : bool, callable or None, optional
         Progress bar over the corner boards evaluated. [1]
+    results : dict, optional
+        The engine's result of each bus by id, when the caller has it (the buses of
+        :func:`pinlib.engines.dispatch.check_design`); else each bus is evaluated
+        here. [1]
 
     Returns
     -------
@@ -149,7 +163,7 @@ def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
         Per check: the margin at its worst corner and the parameters (at which end)
         that set it.
     """
-    nominal = _nominal(design)
+    nominal = _nominal(design) if results is None else results
     collected = _collected(design)
     out, methods, per_bus = [], {}, {}
     sampled = [b for b in design.buses if b.id in collected or b.protocol in PUSH_PULL_PROTOCOLS]
@@ -160,56 +174,88 @@ def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
         for bus in sampled:
             params = parameters(design, bus=bus.id, collected=collected)
             per_bus[bus.id] = params
-            k = len(params)
-
-            def run(u, bus=bus, params=params):
-                bar.update(len(u))
-                scen = Sampled(u, params)
-                if bus.protocol in PUSH_PULL_PROTOCOLS:
-                    return ppb.build(bus, design, scen.factors(bus), scen.n,
-                                     nominal=nominal[bus.id])
-                return ob.build(bus, design, scen, collected=collected[bus.id])
-
-            if bus.protocol in PUSH_PULL_PROTOCOLS:
-                # the engine's own search, so a check's corner here and its status in
-                # the engine's result agree
-                worst = ppw.search(k, lambda u, run=run: _key(_margins(run(u))))
-                methods[bus.id] = ppw.method_text(k)
-            elif k <= exhaustive_limit:
-                verts = (np.array(list(itertools.product((-1.0, 1.0), repeat=k))) if k
-                         else np.zeros((1, 0)))
-                bb = run(verts)
-                mg = _key(_margins(bb))
-                best = np.argmin(mg, axis=0)
-                worst = verts[best]                         # (checks, k)
-                methods[bus.id] = (f"all {len(verts)} corners of {k} parameters" if k else
-                                   "no toleranced parameter")
-            else:
-                worst = _screen(run, k)
-                methods[bus.id] = (f"{k} parameters: each screened alone at both ends, then "
-                                   "the combined corner improved one flip at a time")
-            bb_w = run(worst)
-            names = _names(bus, bb_w, nominal[bus.id])
-            checks = [c for _, c in bb_w.checks()]
-            gains = _gains(run, worst, k, len(checks))
-            for j, (nm, c) in enumerate(zip(names, checks, strict=True)):
-                ec = nm["engine"]
-                corner = []
-                for i in np.argsort(-gains[j]) if k else []:
-                    g = gains[j, i]
-                    here = float(_margin(c, j))
-                    if abs(g) > 1e-9 * max(1.0, abs(here) if math.isfinite(here) else 1.0):
-                        corner.append((params[i].name, "+" if worst[j, i] > 0 else "−", float(g)))
-                out.append(CornerCheck(
-                    nm["name"], bus.id, nm["segment"], c.signal, c.id, c.unit,
-                    ec.source if ec is not None else "",
-                    None if c.margin is None else float(c.margin[j]),
-                    None if c.value is None else float(c.value[j]),
-                    None if c.limit is None else float(c.limit[j]),
-                    ob.STATUS[int(c.status[j])], corner,
-                    ec.status if ec is not None else None, ec.margin if ec is not None else None))
+            run = _runner(bus, design, params, nominal[bus.id], collected.get(bus.id), bar)
+            # one memo per bus: a line with identical inputs at several of the search's
+            # boards is analysed once, as in the engine's own corner search
+            with run_scope():
+                worst, methods[bus.id] = _worst(bus, run, len(params), exhaustive_limit)
+                out += _bus_checks(bus, run, worst, params, nominal[bus.id])
     return CornersResult(design.title, out, methods, per_bus,
                          _not_sampled(design, "no corners"))
+
+
+def _worst(bus, run, k: int, exhaustive_limit: int) -> tuple[np.ndarray, str]:
+    """The worst corner of each check of one bus, shape ``(checks, k)``, and how it was
+    searched."""
+    if bus.protocol in PUSH_PULL_PROTOCOLS:
+        # the engine's own search, so a check's corner here and its status in the
+        # engine's result agree
+        return ppw.search(k, lambda u: _key(_margins(run(u)))), ppw.method_text(k)
+    if k <= exhaustive_limit:
+        verts = (np.array(list(itertools.product((-1.0, 1.0), repeat=k))) if k
+                 else np.zeros((1, 0)))
+        mg = _key(_margins(run(verts)))
+        return verts[np.argmin(mg, axis=0)], (f"all {len(verts)} corners of {k} parameters"
+                                              if k else "no toleranced parameter")
+    return _screen(run, k), (f"{k} parameters: each screened alone at both ends, then the "
+                             "combined corner improved one flip at a time")
+
+
+def _bus_checks(bus, run, worst: np.ndarray, params: list[Parameter],
+                nominal) -> list[CornerCheck]:
+    """Each check of one bus at its worst corner (``worst``), with the parameters that
+    set it."""
+    k = len(params)
+    bb_w = run(worst)
+    names = _names(bus, bb_w, nominal)
+    checks = [c for _, c in bb_w.checks()]
+    gains = _gains(run, worst, k, len(checks))
+    out = []
+    for j, (nm, c) in enumerate(zip(names, checks, strict=True)):
+        ec = nm["engine"]
+        corner = []
+        for i in np.argsort(-gains[j]) if k else []:
+            g = gains[j, i]
+            here = float(_margin(c, j))
+            if abs(g) > 1e-9 * max(1.0, abs(here) if math.isfinite(here) else 1.0):
+                corner.append((params[i].name, "+" if worst[j, i] > 0 else "−", float(g)))
+        out.append(CornerCheck(
+            nm["name"], bus.id, nm["segment"], c.signal, c.id, c.unit,
+            ec.source if ec is not None else "",
+            None if c.margin is None else float(c.margin[j]),
+            None if c.value is None else float(c.value[j]),
+            None if c.limit is None else float(c.limit[j]),
+            ob.STATUS[int(c.status[j])], corner,
+            ec.status if ec is not None else None, ec.margin if ec is not None else None))
+    return out
+
+
+def _runner(bus, design: Design, params: list[Parameter], nominal, collected, bar):
+    """``run(u)``: the bus's checks at the boards ``u`` (rows of unit deviations of
+    ``params``), a batch of the open-drain array engine or of the push-pull engine.
+
+    An SPI bus's corner boards are evaluated as arrays where the engine's own corner
+    search does so (:func:`pinlib.engines.ppcorners.corner_rows`: each line once per
+    distinct set of its factors, equal to the engine board by board); other push-pull
+    buses, or boards it does not serve, the engine evaluates board by board
+    (:func:`pinlib.engines.ppbatch.build`)."""
+    if bus.protocol not in PUSH_PULL_PROTOCOLS:
+        def run(u):
+            bar.update(len(u))
+            return ob.build(bus, design, Sampled(u, params), collected=collected)
+        return run
+    arrays = None
+    if params and [p.key for p in params] == [s[-1] for s in ppb.parameter_specs(bus)]:
+        arrays = corner_rows(bus, design, nominal, floor=_FLOOR)
+
+    def run_pp(u):
+        bar.update(len(u))
+        got = ppb.build_rows(bus, nominal, u, arrays) if arrays is not None else None
+        if got is not None:
+            return got
+        scen = Sampled(u, params)
+        return ppb.build(bus, design, scen.factors(bus), scen.n, nominal=nominal)
+    return run_pp
 
 
 def _margin(c: ob.BatchCheck, j: int):
