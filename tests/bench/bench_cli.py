@@ -14,13 +14,11 @@ the first run, with an empty store, is reported beside them.
 from __future__ import annotations
 
 import os
-import statistics
 import subprocess
 import sys
-import time
 from pathlib import Path
 
-from tests.bench.common import Result
+from tests.bench.common import Result, in_turn
 
 __all__ = ["run", "DEMO"]
 
@@ -64,19 +62,6 @@ def heavy_imports() -> list[str]:
     return proc.stderr.strip().splitlines()[-1].split() if proc.stderr.strip() else []
 
 
-def _interleaved(funcs, repeats: int) -> list[float]:
-    """Median wall time of each of ``funcs``, run in turn ``repeats`` times after one
-    warm-up round. [s]"""
-    times: list[list[float]] = [[] for _ in funcs]
-    for round_ in range(repeats + 1):
-        for func, kept in zip(funcs, times, strict=True):
-            start = time.perf_counter()
-            func()
-            if round_:
-                kept.append(time.perf_counter() - start)
-    return [statistics.median(t) for t in times]
-
-
 def run(repeats: int = 7, quick: bool = False) -> list[Result]:
     import tempfile
 
@@ -84,7 +69,7 @@ def run(repeats: int = 7, quick: bool = False) -> list[Result]:
     with tempfile.TemporaryDirectory(prefix="pinlib-bench-fits-") as warm:
         # The runs take turns (check, numpy, bare, cold check, ...) so that the ratios
         # compare runs made under the same load of the shared machine.
-        t_check, t_numpy, t_bare, t_cold = _interleaved([
+        t_check, t_numpy, t_bare, t_cold = in_turn([
             lambda: _run(cmd, warm),  # its warm-up run fills the store
             lambda: _run([sys.executable, "-c", "import numpy"]),
             lambda: _run([sys.executable, "-c", "pass"]),

@@ -19,28 +19,18 @@ pinlib code in it, timed in turn with the subject in the same process:
 
 from __future__ import annotations
 
-import gc
-import statistics
-import time
 from pathlib import Path
 
 from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS
 from pinlib.engines import opendrain
 from pinlib.engines.opendrain.batch import WorstCase, build
 from pinlib.model.design import load_design
-from tests.bench.common import Result, reference_work
+from tests.bench.common import Result, in_turn, reference_work
+from tests.bench.odunits import od_designs
 
 __all__ = ["run"]
 
 ROOT = Path(__file__).resolve().parents[2]
-PARTS = ROOT / "tests" / "data" / "parts"
-DESIGNS = (
-    (ROOT / "workbooks" / "designs" / "demo-board.toml", ()),
-    (ROOT / "tests" / "data" / "translator-cable.toml", ()),
-    (ROOT / "tests" / "golden" / "designs" / "whatif-buses.toml", (PARTS,)),
-    (ROOT / "tests" / "golden" / "designs" / "whatif-rc.toml", (PARTS,)),
-)
-
 
 #: ``evaluate_bus`` time of the 8 buses below / ``reference_work`` time for the scalar
 #: one-bus engine (``checks.py``), measured 2026-12-03 at commit 7abe15c (a worktree of it
@@ -54,24 +44,10 @@ SCALAR_BASELINE = 12.0
 
 def _buses():
     out = []
-    for path, folders in DESIGNS:
+    for path, folders in od_designs(ROOT):
         design = load_design(path, library_folders=folders)
         out += [(b, design) for b in design.buses if b.protocol in OPEN_DRAIN_PROTOCOLS]
     return out
-
-
-def _in_turn(funcs, repeats: int) -> list[float]:
-    """Median time of each function, the functions run one after another in each round."""
-    for f in funcs:
-        f()
-    times: list[list[float]] = [[] for _ in funcs]
-    for _ in range(repeats):
-        for f, got in zip(funcs, times, strict=True):
-            gc.collect()
-            start = time.perf_counter()
-            f()
-            got.append(time.perf_counter() - start)
-    return [statistics.median(t) for t in times]
 
 
 def run(repeats: int = 40, quick: bool = False) -> list[Result]:
@@ -91,9 +67,9 @@ def run(repeats: int = 40, quick: bool = False) -> list[Result]:
 
     n = max(repeats, 10 if quick else 40)
     # the two alone in turn, as SCALAR_BASELINE was measured; then the information
-    t_one, t_unit = _in_turn((one_bus, reference_work), n)
+    t_one, t_unit = in_turn((one_bus, reference_work), n)
     units = t_one / t_unit
-    t_again, t_collect, t_arrays = _in_turn((one_bus, gather, arrays), max(10, n // 2))
+    t_again, t_collect, t_arrays = in_turn((one_bus, gather, arrays), max(10, n // 2))
     return [Result("od-one-bus: evaluate_bus / reference work", t_one, "reference_work",
                    t_unit, units, f"of the reference work's time (scalar engine "
                    f"{SCALAR_BASELINE:g}x)", target=f"<= {SCALAR_BASELINE:g}",

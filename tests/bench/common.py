@@ -14,7 +14,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 __all__ = ["Result", "median_time", "machine", "format_seconds", "format_ratio",
-           "reference_work"]
+           "reference_work", "in_turn"]
 
 
 def median_time(func, repeats: int, *, warmup: int = 1) -> float:
@@ -28,6 +28,22 @@ def median_time(func, repeats: int, *, warmup: int = 1) -> float:
         func()
         times.append(time.perf_counter() - start)
     return statistics.median(times)
+
+
+def in_turn(funcs, repeats: int) -> list[float]:
+    """Median wall time of each of ``funcs``, after one warm-up run of each: the
+    functions take turns in every round (a shared machine's speed drifts, and turns
+    give every function the same drift). [s]"""
+    for func in funcs:
+        func()
+    times: list[list[float]] = [[] for _ in funcs]
+    for _ in range(repeats):
+        for func, got in zip(funcs, times, strict=True):
+            gc.collect()
+            start = time.perf_counter()
+            func()
+            got.append(time.perf_counter() - start)
+    return [statistics.median(t) for t in times]
 
 
 def reference_work() -> float:

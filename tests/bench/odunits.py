@@ -12,39 +12,43 @@ and an environment with ``pydantic>=2.5`` (that tree reads its files through it)
 
 from __future__ import annotations
 
-import gc
 import importlib.util
-import statistics
 import sys
-import time
 from pathlib import Path
 
 HERE = Path(__file__).resolve().parent
 
 
-def _reference_work():
+def od_designs(root: Path) -> tuple:
+    """The bench's designs under ``root`` (a tree of pinlib), each with the library
+    folders it needs: every open-drain bus of them is timed."""
+    parts = root / "tests" / "data" / "parts"
+    return ((root / "workbooks" / "designs" / "demo-board.toml", ()),
+            (root / "tests" / "data" / "translator-cable.toml", ()),
+            (root / "tests" / "golden" / "designs" / "whatif-buses.toml", (parts,)),
+            (root / "tests" / "golden" / "designs" / "whatif-rc.toml", (parts,)))
+
+
+def _common():
+    """This checkout's tests/bench/common.py, loaded without the package (whose
+    ``__init__`` may import this checkout's pinlib before ``TREE``'s is on the path)."""
     spec = importlib.util.spec_from_file_location("_bench_common", HERE / "common.py")
     module = importlib.util.module_from_spec(spec)
     sys.modules[spec.name] = module  # dataclasses look their module up
     spec.loader.exec_module(module)
-    return module.reference_work
+    return module
 
 
 def main(argv: list[str]) -> None:
     tree = Path(argv[0]).resolve()
     rounds = int(argv[1]) if len(argv) > 1 else 40
-    unit = _reference_work()
+    common = _common()
     sys.path.insert(0, str(tree))
     from pinlib.engines import opendrain
     from pinlib.model.design import load_design
 
-    parts = tree / "tests" / "data" / "parts"
-    designs = ((tree / "workbooks" / "designs" / "demo-board.toml", ()),
-               (tree / "tests" / "data" / "translator-cable.toml", ()),
-               (tree / "tests" / "golden" / "designs" / "whatif-buses.toml", (parts,)),
-               (tree / "tests" / "golden" / "designs" / "whatif-rc.toml", (parts,)))
     buses = []
-    for path, folders in designs:
+    for path, folders in od_designs(tree):
         design = load_design(path, library_folders=folders)
         buses += [(b, design) for b in design.buses if b.protocol in ("i2c", "smbus")]
 
@@ -52,17 +56,7 @@ def main(argv: list[str]) -> None:
         for bus, design in buses:
             opendrain.evaluate_bus(bus, design)
 
-    funcs = (one_bus, unit)
-    times: list[list[float]] = [[], []]
-    for f in funcs:
-        f()
-    for _ in range(rounds):
-        for f, got in zip(funcs, times, strict=True):
-            gc.collect()
-            start = time.perf_counter()
-            f()
-            got.append(time.perf_counter() - start)
-    t_one, t_unit = (statistics.median(t) for t in times)
+    t_one, t_unit = common.in_turn((one_bus, common.reference_work), rounds)
     print(f"{len(buses)} buses: evaluate_bus {t_one * 1e3:.2f} ms, reference_work "
           f"{t_unit * 1e3:.3f} ms, ratio {t_one / t_unit:.3f}")
 
