@@ -13,6 +13,8 @@ from pinlib.physics.guards import non_negative, positive
 INF, NAN = math.inf, math.nan
 
 
+# the domains are the guards' own definitions (a number above 0, finite unless +inf is
+# allowed; at or above 0 and finite): common practice, no source
 @pytest.mark.parametrize("value, finite_ok, inf_ok", [
     (1e-12, True, True), (0.0, False, False), (-1.0, False, False), (INF, False, True),
     (-INF, False, False), (NAN, False, False), (5, True, True), (np.float64(2.0), True, True),

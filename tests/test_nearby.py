@@ -3,6 +3,8 @@
 from pinlib.core import nearby
 
 
+# the expected names follow difflib's ratio of matching characters (the cutoffs are
+# pinlib's own): common practice, no source
 def test_closest_names_the_near_misses_best_first():
     names = ["c_in", "leakage", "v_il", "v_ih", "v_ol"]
     assert nearby.closest("v_iil", names)[0] == "v_il"
