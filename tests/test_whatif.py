@@ -621,3 +621,27 @@ def test_the_corners_bar_counts_corner_boards(monkeypatch):
     assert seen and all(total is None for _, total in seen)
     assert seen[-1][0] > len(d.buses)              # more than one unit per bus
     assert sum(boards) <= seen[-1][0]              # every open-drain board is counted
+
+
+def test_monte_carlo_from_the_checks_results_equals_its_own(monkeypatch):
+    """`pinlib check --monte-carlo` and `pinlib report` hand the run the buses and
+    couplings they have just checked: the same boards and counts, and no bus or
+    coupling evaluated a second time."""
+    import pinlib.engines.dispatch as dispatch
+
+    d = load_design(DEMO)
+    own = whatif.monte_carlo(d, 400, seed=7, progress=False)
+    checked = check_design(d)
+    calls = []
+    for name in ("evaluate_bus", "evaluate_couplings"):
+        real = getattr(dispatch, name)
+        monkeypatch.setattr(dispatch, name,
+                            lambda *a, _real=real, _n=name, **k: calls.append(_n) or _real(*a, **k))
+    given = whatif.monte_carlo(d, 400, seed=7, progress=False,
+                               results={b.id: b for b in checked.buses},
+                               couplings=checked.couplings)
+    assert calls == []
+    assert d.couplings   # the demo's coupling is sampled too
+    # derived from the engine itself: the same nominal results, the same draws
+    assert json.dumps(given.to_json(), sort_keys=True) == json.dumps(own.to_json(),
+                                                                     sort_keys=True)

@@ -281,8 +281,8 @@ def _warn_implausible(design) -> None:
 
 
 def _what_if(design, args, result) -> dict:
-    """Corners and Monte Carlo when asked: {"corners": ..., "monte_carlo": ...}; the
-    corners start from ``result``, the design's checked just before."""
+    """Corners and Monte Carlo when asked: {"corners": ..., "monte_carlo": ...}; both
+    start from ``result``, the design's checked just before."""
     out = {}
     progress = True if getattr(args, "progress", False) else None
     if getattr(args, "corners", False):
@@ -294,5 +294,7 @@ def _what_if(design, args, result) -> dict:
         from pinlib.studies.whatif import monte_carlo
 
         out["monte_carlo"] = monte_carlo(design, args.monte_carlo, seed=args.seed,
-                                         progress=progress)
+                                         progress=progress,
+                                         results={b.id: b for b in result.buses},
+                                         couplings=result.couplings)
     return out

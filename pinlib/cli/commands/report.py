@@ -89,12 +89,14 @@ def chart_dir_for(md_path: str | Path) -> str:
     return f"{Path(md_path).stem}-charts"
 
 
-def _monte_carlo(design, n: int, seed: int | None):
-    """Run the Monte Carlo engine when it is installed.
+def _monte_carlo(design, n: int, seed: int | None, result):
+    """Run the Monte Carlo engine when it is installed, from ``result`` (the design's
+    checked just before: its buses and couplings are not evaluated again).
 
     :func:`pinlib.studies.whatif.monte_carlo` (the first of :data:`MONTE_CARLO_MODULES` that
-    imports and has ``monte_carlo(design, n, *, seed=None)``); it shows progress on a
-    terminal.  Without it the option is refused with a message (exit 2).
+    imports and has ``monte_carlo(design, n, *, seed=None, results=None,
+    couplings=None)``); it shows progress on a terminal.  Without it the option is
+    refused with a message (exit 2).
     """
     import importlib
 
@@ -110,7 +112,8 @@ def _monte_carlo(design, n: int, seed: int | None):
         run = getattr(module, "monte_carlo", None)
         if run is None:
             continue
-        return run(design, n, seed=seed)
+        return run(design, n, seed=seed, results={b.id: b for b in result.buses},
+                   couplings=result.couplings)
     raise InputError(M.MONTE_CARLO_UNAVAILABLE,
                      field="--monte-carlo", value=n,
                      hint="write the report without --monte-carlo")
@@ -144,7 +147,7 @@ def run(args) -> int:
               + M.SNAPSHOT_IGNORED.format(design=args.design), file=sys.stderr)
     mc = None
     if args.monte_carlo is not None:
-        mc = _monte_carlo(design, args.monte_carlo, args.seed)
+        mc = _monte_carlo(design, args.monte_carlo, args.seed, result)
     review = build_review(design, result, changes=changes, mc=mc)
     if args.html:
         atomic_write(target, review.html())

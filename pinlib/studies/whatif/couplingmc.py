@@ -24,16 +24,20 @@ class CouplingRun:
     """The couplings' part of one run: nominal results, tables and tallies."""
 
     def __init__(self, design: Design, nominal_buses: dict, params: list[Parameter],
-                 kept: int, span: float):
+                 kept: int, span: float, couplings: list | None = None):
+        """``couplings``: the engine's coupling results when the caller has them (else
+        they are evaluated from ``nominal_buses``)."""
         self.design, self.params, self.kept = design, params, kept
         sampled = {k[1] for k in (p.key for p in params)}
         self.couplings = [c for c in design.couplings if c.id in sampled]
         self.nominal: dict = {}
         self.tables: dict = {}
         if self.couplings:
-            from pinlib.engines.dispatch import evaluate_couplings
+            if couplings is None:
+                from pinlib.engines.dispatch import evaluate_couplings
 
-            for r in evaluate_couplings(design, list(nominal_buses.values())):
+                couplings = evaluate_couplings(design, list(nominal_buses.values()))
+            for r in couplings:
                 self.nominal[r.id] = r
             for c in self.couplings:
                 if c.id in self.nominal:

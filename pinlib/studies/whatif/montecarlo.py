@@ -38,7 +38,8 @@ SENSITIVITY_BOARDS = 100_000
 
 
 def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=None,
-                chunk: int = CHUNK) -> McResult:
+                chunk: int = CHUNK, results: dict | None = None,
+                couplings: list | None = None) -> McResult:
     """Draw ``n`` boards within the design's tolerances and check each.
 
     Parameters
@@ -54,6 +55,13 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
         Progress bar (see :func:`pinlib.core.progress.progress_bar`). [1]
     chunk : int, optional
         Boards per numpy pass. [1]
+    results : dict, optional
+        The engine's result of each bus by id, when the caller has it (the buses of
+        :func:`pinlib.engines.dispatch.check_design`); else each bus is evaluated
+        here. [1]
+    couplings : list, optional
+        The engine's coupling results, with ``results`` (the couplings of the same
+        check); else each coupling is evaluated here. [1]
 
     Returns
     -------
@@ -71,7 +79,7 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
     no value goes to zero or below).
     """
     n = _checked_size(n, chunk)
-    nominal = _nominal(design)
+    nominal = _nominal(design) if results is None else results
     collected = _collected(design)
     params = parameters(design, collected=collected)
     ss = np.random.SeedSequence(seed)
@@ -82,7 +90,7 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
     run.prepare_tables(n)
     # the couplings' spacings and lengths: a stream of their own
     cparams = coupling_parameters(design)
-    crun = CouplingRun(design, nominal, cparams, kept, run.span)
+    crun = CouplingRun(design, nominal, cparams, kept, run.span, couplings)
     rng_c = np.random.default_rng(ss.spawn(1)[0])
     uc_kept = np.empty((kept, len(cparams)))
     bar = progress_bar(n, desc="Monte Carlo", unit="board", enabled=progress)
