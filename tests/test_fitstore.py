@@ -242,3 +242,26 @@ def test_the_newest_fits_are_kept_up_to_max_fits(store, monkeypatch):
     assert store.flush()
     data = json.loads(store.path.read_text(encoding="utf-8"))
     assert sorted(data["fits"]) == sorted(newest) and sorted(store._fits) == sorted(newest)
+
+
+def test_the_digests_are_hashlibs():
+    # derived from the standard: SHA-256 is one function (FIPS 180-4), whichever module
+    # computes it; pinlib.core.digest spares the check OpenSSL's load
+    import hashlib
+
+    from pinlib.core.digest import sha256
+
+    for data in (b"", b"abc", bytes(range(256)) * 40):
+        h = sha256()
+        h.update(data)
+        assert h.hexdigest() == hashlib.sha256(data).hexdigest()
+        assert sha256(data).hexdigest() == hashlib.sha256(data).hexdigest()
+    key = (b"\x00\x01", 3.3, "rise", None)
+    expected = hashlib.sha256()
+    for part in key:
+        expected.update(part if isinstance(part, bytes) else repr(part).encode())
+        expected.update(b"|")
+    assert fitting.fit_key(key) == expected.hexdigest()
+    fit = {"r_out": 25.0, "t_ramp": 1e-9}
+    body = json.dumps(["v", "k", fit], sort_keys=True, allow_nan=True)
+    assert fitstore.entry_digest("k", fit, "v") == hashlib.sha256(body.encode()).hexdigest()

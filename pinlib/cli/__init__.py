@@ -24,6 +24,21 @@ __all__ = ["main", "entry", "COMMANDS"]
 COMMANDS = ["check", "report", "swap", "candidates", "measured", "parts", "new", "schema",
             "demo", "workbench"]
 
+#: The line ``pinlib --help`` shows for each command (its module passes it as ``help``):
+#: the program's own help lists every command without importing their modules.
+SUMMARIES = {
+    "check": "evaluate a design's buses (pull-ups, levels, timing)",
+    "report": "write a design-review report (HTML with charts, or Markdown)",
+    "swap": "rerun a design with parts substituted and show what changes",
+    "candidates": "rank the library parts that could stand in a position",
+    "measured": "compare a rise time measured on the board with the model's bus capacitance",
+    "parts": "list, show, create, record into, import from IBIS and check library parts",
+    "new": "write a starter design file from a list of parts",
+    "schema": "print the JSON Schema of design files or part files",
+    "demo": "copy the demo design and the workbooks into a folder",
+    "workbench": "serve the workbooks as a web page without code (Voila, on 127.0.0.1)",
+}
+
 EPILOG = """\
 examples:
   pinlib check workbooks/designs/demo-board.toml
@@ -35,7 +50,11 @@ the real board. Standards, local codes and licensed practice prevail.
 """
 
 
-def build_parser() -> argparse.ArgumentParser:
+def build_parser(only: str | None = None) -> argparse.ArgumentParser:
+    """The program's parser: every command's own arguments, or with ``only`` (a command's
+    name) that command's alone, the others standing as their name and :data:`SUMMARIES`
+    line (all that ``pinlib --help`` and an unknown command's error show of them), so that
+    a command imports no other command's module."""
     parser = argparse.ArgumentParser(
         prog="pinlib",
         description="Pin characteristics library and bus budgets for I2C, SMBus, SPI and GPIO.",
@@ -45,6 +64,9 @@ def build_parser() -> argparse.ArgumentParser:
     parser.add_argument("--version", action="version", version=f"pinlib {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for name in COMMANDS:
+        if only is not None and name != only:
+            sub.add_parser(name, help=SUMMARIES[name])
+            continue
         try:
             module = importlib.import_module(f"pinlib.cli.commands.{name}")
         except ModuleNotFoundError as exc:
@@ -102,8 +124,17 @@ def _interrupted() -> int:
     return 130
 
 
+def chosen_command(argv: list[str]) -> str | None:
+    """The command named in ``argv`` (its first word not an option; the program's own
+    options, ``--help`` and ``--version``, take no value), or None when it names none of
+    :data:`COMMANDS`."""
+    word = next((a for a in argv if not a.startswith("-")), None)
+    return word if word in SUMMARIES else None
+
+
 def _main(argv: list[str] | None) -> int:
-    parser = build_parser()
+    words = sys.argv[1:] if argv is None else argv
+    parser = build_parser(chosen_command(words) or "")
     args = parser.parse_args(argv)
     if not getattr(args, "run", None):
         parser.print_help()

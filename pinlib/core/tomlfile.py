@@ -18,7 +18,6 @@ import os
 import re
 import stat
 import sys
-import tempfile
 from pathlib import Path
 
 from pinlib.core import messages as M
@@ -358,6 +357,8 @@ def atomic_write(path: str | os.PathLike, text: str) -> None:
     permission bits (a new file those of the umask), and then replaces the old file in
     one step.
     """
+    import tempfile  # here: a command that only reads files does without it (and random)
+
     # Through a link: the file it leads to is replaced, and the link stays a link.
     path = Path(os.path.realpath(path)) if os.path.islink(path) else Path(path)
     folder = path.parent if str(path.parent) else Path(".")

@@ -39,12 +39,13 @@ notebook keeps fits for the process, as before.
 from __future__ import annotations
 
 import atexit
-import hashlib
 import json
 import os
 import stat
 from collections.abc import Iterator, MutableMapping
 from pathlib import Path
+
+from pinlib.core.digest import sha256
 
 __all__ = ["FORMAT", "MAX_BYTES", "MAX_FITS", "FitStore", "code_version", "default_path",
            "entry_digest", "install"]
@@ -62,7 +63,7 @@ def code_version() -> str:
     """A digest of the source of the modules that compute fits."""
     from pinlib.physics import driver, rc
 
-    h = hashlib.sha256()
+    h = sha256()
     for path in (*sorted(Path(driver.__file__).parent.glob("*.py")), Path(rc.__file__)):
         h.update(path.read_bytes())
     return h.hexdigest()[:20]
@@ -179,7 +180,7 @@ class FitStore(MutableMapping):
 def entry_digest(key: str, fit: dict, version: str) -> str:
     """A digest of one entry: its key, its content and the code version that made it."""
     body = json.dumps([version, key, fit], sort_keys=True, allow_nan=True)
-    return hashlib.sha256(body.encode("utf-8")).hexdigest()
+    return sha256(body.encode("utf-8")).hexdigest()
 
 
 def _no_constant(name: str):

@@ -24,7 +24,6 @@ from pinlib.core.errors import LibraryError, PinlibError
 from pinlib.core.records import Record, RecordError
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_index, line_of, load
-from pinlib.library.fields import unknown_field_help
 from pinlib.library.schema import FORMAT, Part
 from pinlib.library.values import Sourced
 from pinlib.library.walk import (  # noqa: F401 - the walk's names, as before
@@ -118,6 +117,9 @@ def record_errors(exc: RecordError, *, file=None, locate=None, cls=LibraryError,
             continue
         hint, expected = None, issue.expected
         if issue.kind == "unknown":
+            # here: the field tables are built only to answer a misspelt key
+            from pinlib.library.fields import unknown_field_help
+
             expected, hint = unknown_field_help(model, loc, format_name)
         value = issue.value if not isinstance(issue.value, dict) else None
         out.append(cls(issue.problem, file=where, line=line, field=dotted, value=value,

@@ -56,10 +56,12 @@ def part_paths(folder: Path, *, follow_links: bool = False) -> tuple[list[Path],
     found: dict[Path, Path] = {}  # real file -> the path it was found by
     problems: list[LibraryError] = []
     seen = {root}
-    stack = [(folder, 0)]
+    # each folder with its real path: an entry that is not a link lies at the real path
+    # of its folder (no path resolved component by component for every file)
+    stack = [(folder, root, 0)]
     entries = 0
     while stack:
-        here, depth = stack.pop()
+        here, real_here, depth = stack.pop()
         try:
             listing = list(os.scandir(here))
         except OSError as exc:
@@ -82,7 +84,7 @@ def part_paths(folder: Path, *, follow_links: bool = False) -> tuple[list[Path],
                     problems.append(LibraryError(M.LINK_OUT_OF_LIBRARY, file=str(path),
                                                  hint=f"it leads to {real}"))
                 continue
-            real = real or path.resolve()
+            real = real or real_here / entry.name
             if is_dir:
                 if real in seen:
                     continue
@@ -92,7 +94,7 @@ def part_paths(folder: Path, *, follow_links: bool = False) -> tuple[list[Path],
                                        M.LIBRARY_IS_SYSTEM_FOLDER.format(real=real),
                                        file=str(path), field="library")
                 seen.add(real)
-                stack.append((path, depth + 1))
+                stack.append((path, real, depth + 1))
             elif entry.name.endswith(".toml") and real not in found:
                 found[real] = path
                 if len(found) > MAX_PART_FILES:

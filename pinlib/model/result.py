@@ -59,6 +59,8 @@ def worst(statuses) -> str:
 
 @dataclass
 class Figure:
+    """A computed value and its unit."""
+
     value: Any
     unit: str = ""
 
@@ -270,6 +272,8 @@ class Group:
 
 @dataclass
 class LineResult(Group):
+    """The figures and checks of one line (signal) of a bus."""
+
     signal: str = ""
 
     @property
@@ -282,6 +286,8 @@ class LineResult(Group):
 
 @dataclass
 class SegmentResult(Group):
+    """The figures and checks of one segment of an open-drain bus."""
+
     id: str = ""
 
     @property
@@ -376,6 +382,8 @@ class CouplingResult(Group):
 
 @dataclass
 class DesignResult:
+    """The result of a design: its buses' and couplings' results, in file order."""
+
     design: str
     path: str | None = None
     buses: list[BusResult] = field(default_factory=list)

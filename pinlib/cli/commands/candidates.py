@@ -6,6 +6,7 @@ import argparse
 import json
 import sys
 
+from pinlib.cli import SUMMARIES
 from pinlib.core import messages as M
 
 __all__ = ["add_parser", "run"]
@@ -35,7 +36,7 @@ def add_parser(sub) -> None:
 
     p = sub.add_parser(
         "candidates",
-        help="rank the library parts that could stand in a position",
+        help=SUMMARIES["candidates"],
         description="Evaluate every library part that could serve a device's position "
                     "(same pin functions, allowed drives) in the design, and rank them by "
                     "status and worst margin.",

@@ -6,6 +6,7 @@ import argparse
 import json
 import sys
 
+from pinlib.cli import SUMMARIES
 from pinlib.core import messages as M
 
 __all__ = ["add_parser", "run"]
@@ -47,7 +48,7 @@ def threshold_type(text):
 def add_parser(sub) -> None:
     p = sub.add_parser(
         "check",
-        help="evaluate a design's buses (pull-ups, levels, timing)",
+        help=SUMMARIES["check"],
         description="Evaluate every bus of a design file (format pinlib.design/1) and report "
                     "figures and checks, each check with its limit and the limit's source.",
         epilog=EXAMPLES,

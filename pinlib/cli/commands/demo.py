@@ -14,6 +14,7 @@ import argparse
 import shlex
 from pathlib import Path
 
+from pinlib.cli import SUMMARIES
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, WriteError
 
@@ -45,7 +46,7 @@ cannot be written.
 def add_parser(sub) -> None:
     p = sub.add_parser(
         "demo",
-        help="copy the demo design and the workbooks into a folder",
+        help=SUMMARIES["demo"],
         description="Copy the demo design (an invented scenario) and the Jupyter workbooks "
                     "into a folder, then print the commands to try them.",
         epilog=EXAMPLES,

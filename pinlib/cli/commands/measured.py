@@ -6,6 +6,7 @@ import argparse
 import json
 import sys
 
+from pinlib.cli import SUMMARIES
 from pinlib.core import messages as M
 
 __all__ = ["add_parser", "run", "levels_type"]
@@ -43,7 +44,7 @@ def levels_type(text: str) -> tuple[float, float]:
 def add_parser(sub) -> None:
     p = sub.add_parser(
         "measured",
-        help="compare a rise time measured on the board with the model's bus capacitance",
+        help=SUMMARIES["measured"],
         description="Turn a rise time measured on an open-drain line (with the probe's "
                     "capacitance and the measuring levels) into bus capacitance, and compare "
                     "it with the design's modelled Cb.",

@@ -12,6 +12,7 @@ import os
 import re
 import sys
 
+from pinlib.cli import SUMMARIES
 from pinlib.core import messages as M
 
 __all__ = ["add_parser", "run", "parse_placements"]
@@ -34,7 +35,7 @@ _PLACE = re.compile(r"^\s*([^=\s]+)\s*=\s*([a-z0-9][a-z0-9-]*)\s*$")
 def add_parser(sub) -> None:
     p = sub.add_parser(
         "new",
-        help="write a starter design file from a list of parts",
+        help=SUMMARIES["new"],
         description="Write a starter design file (format pinlib.design/1) holding one bus "
                     "per protocol the given parts share, with comments on each placeholder, "
                     "ready for 'pinlib check'.",

@@ -12,6 +12,7 @@ import os
 import sys
 from pathlib import Path
 
+from pinlib.cli import SUMMARIES
 from pinlib.cli.commands import partsimport, partsusedby
 from pinlib.core import messages as M
 from pinlib.core import nearby
@@ -19,7 +20,7 @@ from pinlib.core.errors import InputError
 
 __all__ = ["add_parser", "run"]
 
-HELP = "list, show, create, record into, import from IBIS and check library parts"
+HELP = SUMMARIES["parts"]
 
 EPILOG = f"""\
 examples:

@@ -12,6 +12,7 @@ import argparse
 import sys
 from pathlib import Path
 
+from pinlib.cli import SUMMARIES
 from pinlib.core import messages as M
 
 __all__ = ["add_parser", "run", "chart_dir_for", "MONTE_CARLO_MODULES"]
@@ -57,7 +58,7 @@ def threshold_type(text):
 def add_parser(sub) -> None:
     p = sub.add_parser(
         "report",
-        help="write a design-review report (HTML with charts, or Markdown)",
+        help=SUMMARIES["report"],
         description="Evaluate a design and write a self-contained design-review report: the "
                     "caution, figures and checks with their sources, charts, the parts with "
                     "the provenance of their values, and the changes against the saved "

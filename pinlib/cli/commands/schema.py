@@ -11,6 +11,7 @@ import argparse
 import json
 import sys
 
+from pinlib.cli import SUMMARIES
 from pinlib.core import messages as M
 
 __all__ = ["add_parser", "run", "KINDS"]
@@ -32,7 +33,7 @@ supported).
 def add_parser(sub) -> None:
     p = sub.add_parser(
         "schema",
-        help="print the JSON Schema of design files or part files",
+        help=SUMMARIES["schema"],
         description="Print the JSON Schema (draft 2020-12) of design files "
                     "(pinlib.design/1) or part files (pinlib.part/1), for editors.",
         epilog=EXAMPLES,

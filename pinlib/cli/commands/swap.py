@@ -17,6 +17,7 @@ import json
 import re
 import sys
 
+from pinlib.cli import SUMMARIES
 from pinlib.core import messages as M
 
 __all__ = ["add_parser", "run", "threshold_type", "parse_assignments"]
@@ -59,7 +60,7 @@ def threshold_type(text: str) -> float:
 def add_parser(sub) -> None:
     p = sub.add_parser(
         "swap",
-        help="rerun a design with parts substituted and show what changes",
+        help=SUMMARIES["swap"],
         description="Evaluate a design with one or more parts substituted (REF=PART) and "
                     "show the figures before and after, the checks whose status changed and "
                     "the part values behind the change. --write edits the design file in "

@@ -20,6 +20,7 @@ import sys
 from pathlib import Path
 from typing import TYPE_CHECKING
 
+from pinlib.cli import SUMMARIES
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 
@@ -57,7 +58,7 @@ the notebook extra missing, or a server that did not start.
 def add_parser(sub) -> None:
     p = sub.add_parser(
         "workbench",
-        help="serve the workbooks as a web page without code (Voila, on 127.0.0.1)",
+        help=SUMMARIES["workbench"],
         description="Serve the Jupyter workbooks of a folder as web pages that show their "
                     "controls, charts and tables but not their code, on this machine only "
                     "(127.0.0.1). Ctrl-C stops it.",

@@ -300,6 +300,8 @@ class WorstCase(Scenario):
 
 @dataclass
 class _Tap:
+    """A device's pin on a line, with its values over the batch."""
+
     dev: Device
     part: Part | None      # None for the substituted position (values in `pin`)
     pin: PinData
@@ -321,6 +323,8 @@ class _Tap:
 
 @dataclass
 class _Driver:
+    """A pin that pulls a line low, its values over the batch."""
+
     tap: _Tap
     v_ol: Any
     i_ol: Any
@@ -331,6 +335,8 @@ class _Driver:
 
 @dataclass
 class _Receiver:
+    """A pin that reads a line, its thresholds over the batch."""
+
     tap: _Tap
     v_il: Any
     v_ih: Any
@@ -338,6 +344,9 @@ class _Receiver:
 
 @dataclass
 class _Line:
+    """One line of a segment over the batch: its pins, capacitance, leakage and the
+    pull-up range they allow."""
+
     signal: str
     taps: list
     cb: Any
@@ -354,6 +363,8 @@ class _Line:
 
 @dataclass
 class _Seg:
+    """One segment over the batch: its rail and its lines."""
+
     seg: Segment
     index: int
     v: Any

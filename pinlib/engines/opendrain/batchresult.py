@@ -98,6 +98,8 @@ class BatchCheck:
 
 @dataclass
 class SegmentBatch:
+    """The checks and figures of one segment over a batch."""
+
     id: str
     checks: list[BatchCheck] = field(default_factory=list)
     figures: dict = field(default_factory=dict)

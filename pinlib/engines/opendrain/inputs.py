@@ -96,6 +96,8 @@ def value_source(dev: Device, path: str, value) -> str:
 
 @dataclass
 class _Driver:
+    """A pin that pulls a line low, with its guaranteed low level per corner."""
+
     tap: _Tap
     v_ol: np.ndarray        # guaranteed low level at i_ol, per corner [V]
     i_ol: float             # [A]
@@ -107,6 +109,8 @@ class _Driver:
 
 @dataclass
 class _Receiver:
+    """A pin that reads a line, with its input thresholds per corner."""
+
     tap: _Tap
     v_il: np.ndarray        # per corner [V]
     v_ih: np.ndarray        # per corner [V]

@@ -21,6 +21,9 @@ from pinlib.model.design.resolve import _geometries, _Resolver
 
 @dataclass(frozen=True)
 class Design:
+    """A design read and resolved: its buses, geometries and couplings, the library its
+    parts come from, and the file it was read from (path and text)."""
+
     title: str
     path: Path | None
     buses: tuple[Bus, ...]

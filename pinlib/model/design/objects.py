@@ -10,6 +10,9 @@ from pinlib.library.schema import Part
 
 @dataclass(frozen=True)
 class Geometry:
+    """A named trace geometry of the design: its kind, the trace's dimensions [m], the
+    dielectric's relative permittivity ``er`` and the model ``method`` when one is named."""
+
     name: str
     kind: str
     width: float
@@ -35,6 +38,8 @@ class Section:
 
 @dataclass(frozen=True)
 class Cable:
+    """A cable class from the library on a segment, and its length [m]."""
+
     part_id: str
     part: Part
     length: float
@@ -42,6 +47,10 @@ class Cable:
 
 @dataclass(frozen=True)
 class Device:
+    """A part placed on a bus: its reference designator, the part, its role and what
+    the design sets for it there (own rail, series resistor, side of a bridging part,
+    tolerances)."""
+
     ref: str
     part_id: str
     part: Part
@@ -105,6 +114,9 @@ class Line:
 
 @dataclass(frozen=True)
 class Bus:
+    """A bus of the design: protocol, mode, clock and rail; its segments (open-drain)
+    or lines (push-pull), and every device on it."""
+
     id: str
     protocol: str
     mode: str | None

@@ -368,9 +368,9 @@ def _r_out_messages(problem: _Problem, found, x, r_fit: float, t_fit: float, rel
 
 def fit_key(key: tuple) -> str:
     """A digest of a fit's inputs (the points, their levels, a fixed or DC r_out)."""
-    import hashlib
+    from pinlib.core.digest import sha256
 
-    h = hashlib.sha256()
+    h = sha256()
     for part in key:
         h.update(part if isinstance(part, bytes) else repr(part).encode())
         h.update(b"|")

@@ -1,0 +1,67 @@
+"""The program's parser built for one command (what ``pinlib <command>`` builds) against
+the parser of every command: the same help, the same errors, no other command's module."""
+
+from __future__ import annotations
+
+import argparse
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from pinlib.cli import COMMANDS, SUMMARIES, build_parser, chosen_command
+
+ROOT = Path(__file__).resolve().parents[1]
+
+
+def _help(parser: argparse.ArgumentParser) -> str:
+    return parser.format_help()
+
+
+def _commands(parser: argparse.ArgumentParser) -> dict[str, argparse.ArgumentParser]:
+    (sub,) = [a for a in parser._actions if isinstance(a, argparse._SubParsersAction)]
+    return dict(sub.choices)
+
+
+def test_summaries_are_what_the_commands_register():
+    full = build_parser()
+    (sub,) = [a for a in full._actions if isinstance(a, argparse._SubParsersAction)]
+    registered = {action.dest: action.help for action in sub._choices_actions}
+    assert registered == SUMMARIES
+    assert list(SUMMARIES) == COMMANDS
+
+
+@pytest.mark.parametrize("only", [*COMMANDS, ""])
+def test_the_program_help_is_the_same_whatever_command_is_built(only, monkeypatch):
+    monkeypatch.setenv("COLUMNS", "100")
+    assert _help(build_parser(only)) == _help(build_parser())
+
+
+@pytest.mark.parametrize("name", COMMANDS)
+def test_the_command_built_alone_is_the_full_one(name, monkeypatch):
+    monkeypatch.setenv("COLUMNS", "100")
+    assert _help(_commands(build_parser(name))[name]) == _help(_commands(build_parser())[name])
+
+
+@pytest.mark.parametrize(("argv", "expected"), [
+    (["check", "x.toml"], "check"),
+    (["--help"], None),
+    (["--version"], None),
+    ([], None),
+    (["chek"], None),
+    (["-q", "parts", "list"], "parts"),
+    (["--help", "swap"], "swap"),
+])
+def test_chosen_command(argv, expected):
+    assert chosen_command(argv) == expected
+
+
+def test_a_command_imports_no_other_command():
+    code = ("import sys\n"
+            "from pinlib.cli import build_parser, chosen_command\n"
+            "build_parser(chosen_command(['check', 'x.toml']))\n"
+            "print(sorted(m for m in sys.modules if m.startswith('pinlib.cli.commands.')))\n")
+    proc = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                          cwd=ROOT, timeout=60, check=True)
+    assert proc.stdout.strip() == "['pinlib.cli.commands.check']"
