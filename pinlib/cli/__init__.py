@@ -14,6 +14,7 @@ import importlib
 import sys
 
 from pinlib import __version__
+from pinlib.cli.helptext import HelpLayout
 from pinlib.cli.startup import one_blas_thread
 from pinlib.core import messages as M
 from pinlib.core.errors import PinlibError
@@ -59,7 +60,7 @@ def build_parser(only: str | None = None) -> argparse.ArgumentParser:
         prog="pinlib",
         description="Pin characteristics library and bus budgets for I2C, SMBus, SPI and GPIO.",
         epilog=EPILOG,
-        formatter_class=argparse.RawDescriptionHelpFormatter,
+        formatter_class=HelpLayout,
     )
     parser.add_argument("--version", action="version", version=f"pinlib {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")

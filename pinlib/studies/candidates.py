@@ -228,7 +228,8 @@ class Ranking:
                 lines.append(f"… {len(self.candidates) - len(shown)} more (--top N)")
             lines.append("* the part in the design now")
         for n in self.notes:
-            lines.append(f"note: {n}")
+            lines += ([f"note: {n}"] if width is None else
+                      textwrap.wrap(f"note: {n}", width, subsequent_indent="    "))
         return "\n".join(lines) + "\n"
 
 

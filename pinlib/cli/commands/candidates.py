@@ -7,6 +7,7 @@ import json
 import sys
 
 from pinlib.cli import SUMMARIES
+from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
 
 __all__ = ["add_parser", "run"]
@@ -23,7 +24,9 @@ functions, with drives the position allows — is evaluated in the design and ra
 pass before warn before fail, then by the worst margin of the checks the part can move
 (a tie broken by the next worst margin), with the check that sets it and the bus
 figures. On I2C and SMBus buses all candidates are evaluated in one numpy pass per
-group of like parts; positions on SPI or GPIO buses are evaluated one part at a time.
+group of like parts; on SPI and GPIO buses each candidate goes through the engine,
+the waveform edges of many candidates solved together.
+
 * marks the part the design holds now.
 
 exit status: 0 at least one candidate passes or warns, 1 none does, 2 the design, the
@@ -41,7 +44,7 @@ def add_parser(sub) -> None:
                     "(same pin functions, allowed drives) in the design, and rank them by "
                     "status and worst margin.",
         epilog=EXAMPLES,
-        formatter_class=argparse.RawDescriptionHelpFormatter,
+        formatter_class=HelpLayout,
     )
     p.add_argument("design", metavar="DESIGN", help="the design file (.toml)")
     p.add_argument("ref", metavar="REF", help="the reference designator of the position (U4)")

@@ -7,6 +7,7 @@ import json
 import sys
 
 from pinlib.cli import SUMMARIES
+from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
 
 __all__ = ["add_parser", "run"]
@@ -14,14 +15,14 @@ __all__ = ["add_parser", "run"]
 EXAMPLES = """\
 examples:
   pinlib check workbooks/designs/demo-board.toml
-  pinlib check board.toml --detail          # every figure and check, with sources
-  pinlib check board.toml --quiet           # only the problems
+  pinlib check board.toml --detail       # every figure and check, with sources
+  pinlib check board.toml --quiet        # only the problems
   pinlib check board.toml --json > result.json
   pinlib check board.toml --library ~/team-parts --library ./parts
-  pinlib check board.toml --save            # keep board.result.json as the reference
-  pinlib check board.toml --threshold 2%    # later: list what changed against it
-  pinlib check board.toml --corners         # the worst corner of each check
-  pinlib check board.toml --monte-carlo 100000 --seed 7   # yield over the tolerances
+  pinlib check board.toml --save         # keep board.result.json as reference
+  pinlib check board.toml --threshold 2% # later: what changed against it
+  pinlib check board.toml --corners      # the worst corner of each check
+  pinlib check board.toml --monte-carlo 100000 --seed 7  # yield over tolerances
 
 --corners and --monte-carlo cover I2C, SMBus, SPI and GPIO buses: every tolerance (rails,
 pull-ups, series resistors, capacitance_tolerance, length_tolerance) at its ends, or
@@ -52,7 +53,7 @@ def add_parser(sub) -> None:
         description="Evaluate every bus of a design file (format pinlib.design/1) and report "
                     "figures and checks, each check with its limit and the limit's source.",
         epilog=EXAMPLES,
-        formatter_class=argparse.RawDescriptionHelpFormatter,
+        formatter_class=HelpLayout,
     )
     p.add_argument("designs", metavar="DESIGN", nargs="+",
                    help="the design file (.toml); several files or glob patterns (quoted: "

@@ -10,11 +10,11 @@ design's comments use work from ``FOLDER`` as they do from the repository's root
 
 from __future__ import annotations
 
-import argparse
 import shlex
 from pathlib import Path
 
 from pinlib.cli import SUMMARIES
+from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, WriteError
 
@@ -50,7 +50,7 @@ def add_parser(sub) -> None:
         description="Copy the demo design (an invented scenario) and the Jupyter workbooks "
                     "into a folder, then print the commands to try them.",
         epilog=EXAMPLES,
-        formatter_class=argparse.RawDescriptionHelpFormatter,
+        formatter_class=HelpLayout,
     )
     p.add_argument("folder", metavar="FOLDER", nargs="?", default=DEFAULT_FOLDER,
                    help=f"where to copy them (default: ./{DEFAULT_FOLDER}; made if missing)")

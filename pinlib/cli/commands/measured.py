@@ -7,6 +7,7 @@ import json
 import sys
 
 from pinlib.cli import SUMMARIES
+from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
 
 __all__ = ["add_parser", "run", "levels_type"]
@@ -14,8 +15,10 @@ __all__ = ["add_parser", "run", "levels_type"]
 EXAMPLES = """\
 examples:
   pinlib measured board.toml --bus i2c0 --rise 250ns --probe 10pF
-  pinlib measured board.toml --bus i2c0 --line scl --rise "1.1 us" --probe 12pF --levels 10,90
-  pinlib measured board.toml --bus sense --segment sense-2 --rise 400ns --probe 10pF --json
+  pinlib measured board.toml --bus i2c0 --line scl --rise "1.1 us" \\
+      --probe 12pF --levels 10,90
+  pinlib measured board.toml --bus sense --segment sense-2 --rise 400ns \\
+      --probe 10pF --json
 
 The rise of an open-drain line (I2C, SMBus) is an RC charge through the pull-up, so a
 rise read between two levels with a probe of known capacitance gives the line's bus
@@ -48,7 +51,7 @@ def add_parser(sub) -> None:
         description="Turn a rise time measured on an open-drain line (with the probe's "
                     "capacitance and the measuring levels) into bus capacitance, and compare "
                     "it with the design's modelled Cb.",
-        epilog=EXAMPLES, formatter_class=argparse.RawDescriptionHelpFormatter)
+        epilog=EXAMPLES, formatter_class=HelpLayout)
     p.add_argument("design", metavar="DESIGN", help="the design file (.toml)")
     p.add_argument("--bus", required=True, metavar="ID", help="the bus measured (i2c, smbus)")
     p.add_argument("--line", default="sda", choices=["sda", "scl"],

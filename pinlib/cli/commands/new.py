@@ -7,20 +7,22 @@ placeholder.  An existing file is never overwritten; the file is written atomica
 
 from __future__ import annotations
 
-import argparse
 import os
 import re
 import sys
 
 from pinlib.cli import SUMMARIES
+from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
 
 __all__ = ["add_parser", "run", "parse_placements"]
 
 EXAMPLES = """\
 examples:
-  pinlib new board.toml --part U1=mcu-3v3 --part U2=eeprom-i2c --part U3=nor-flash-spi
-  pinlib new board.toml --part U1=mcu-3v3 --part U2=adc-i2c --title "Sensor board"
+  pinlib new board.toml --part U1=mcu-3v3 --part U2=eeprom-i2c \\
+      --part U3=nor-flash-spi
+  pinlib new board.toml --part U1=mcu-3v3 --part U2=adc-i2c \\
+      --title "Sensor board"
   pinlib check board.toml
 
 Every length, rail and clock in the written file is a placeholder, marked so in a
@@ -40,7 +42,7 @@ def add_parser(sub) -> None:
                     "per protocol the given parts share, with comments on each placeholder, "
                     "ready for 'pinlib check'.",
         epilog=EXAMPLES,
-        formatter_class=argparse.RawDescriptionHelpFormatter,
+        formatter_class=HelpLayout,
     )
     p.add_argument("design", metavar="DESIGN", help="the design file to write (.toml)")
     p.add_argument("--part", metavar="REF=PART", action="append", default=[], required=True,

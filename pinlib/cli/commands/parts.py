@@ -14,6 +14,7 @@ from pathlib import Path
 
 from pinlib.cli import SUMMARIES
 from pinlib.cli.commands import partsimport, partsusedby
+from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
 from pinlib.core import nearby
 from pinlib.core.errors import InputError
@@ -56,7 +57,8 @@ inherited from when that is not the part itself.
     "new": """\
 examples:
   pinlib parts new eeprom-acme --from eeprom-i2c --into parts
-  pinlib parts new adc-x --from i2c-peripheral --title "12-bit ADC, I2C" --library parts
+  pinlib parts new adc-x --from i2c-peripheral --title "12-bit ADC, I2C" \\
+      --library parts
 
 Without --into the part goes into the first --library folder, else the first
 PINLIB_LIBRARY folder.
@@ -65,26 +67,31 @@ PINLIB_LIBRARY folder.
 examples:
   pinlib parts record eeprom-acme sda.c_in "6 pF" --source "rev C, table 7.5"
   pinlib parts record eeprom-acme timing.f_max "1 MHz" --source "rev C, p. 4"
-  pinlib parts record eeprom-acme supply.min "1.6 V" --basis measured --source "lab, 3 samples"
-  pinlib parts record eeprom-acme sda.v_ol "0.4 V" --typ "0.15 V" --source "rev C, table 7.5"
+  pinlib parts record eeprom-acme supply.min "1.6 V" --basis measured \\
+      --source "lab, 3 samples"
+  pinlib parts record eeprom-acme sda.v_ol "0.4 V" --typ "0.15 V" \\
+      --source "rev C, table 7.5"
 
 FIELD is PIN.FIELD (sda.c_in), timing.FIELD, supply.min|max, sides.a.PIN.FIELD...
-A negative VALUE goes after '--':  pinlib parts record X -- sda.v_il "-0.3 V" --source S
+
+A negative VALUE goes after '--':
+  pinlib parts record X -- sda.v_il "-0.3 V" --source S
+
 The file keeps its comments and layout; a value that does not validate is refused and
 the file is left as it was. Built-in parts are never written: make a team part first.
 """,
     "import": partsimport.EXAMPLES,
     "check": """\
 examples:
-  pinlib parts check               (the whole merged library)
-  pinlib parts check parts         (every file of one folder, against the library)
+  pinlib parts check         # the whole merged library
+  pinlib parts check parts   # every file of one folder, against the library
 
 Exit code 0 when every file is valid, 1 when any problem is found.
 """,
     "used-by": """\
 examples:
   pinlib parts used-by eeprom-i2c boards/*.toml
-  pinlib parts used-by i2c-peripheral            # every design below this folder
+  pinlib parts used-by i2c-peripheral   # every design below this folder
 """,
     "schema": """\
 examples:
@@ -103,13 +110,13 @@ def add_parser(subparsers) -> None:
                         help="a team library folder (repeatable; after PINLIB_LIBRARY)")
     parser = subparsers.add_parser("parts", help=HELP, description=HELP.capitalize() + ".",
                                    epilog=EPILOG,
-                                   formatter_class=argparse.RawDescriptionHelpFormatter)
+                                   formatter_class=HelpLayout)
     sub = parser.add_subparsers(dest="parts_command", metavar="ACTION")
 
     def action(name, help_text, run):
         p = sub.add_parser(name, help=help_text, description=help_text[0].upper() + help_text[1:]
                            + ".", epilog=_EXAMPLES[name], parents=[common],
-                           formatter_class=argparse.RawDescriptionHelpFormatter)
+                           formatter_class=HelpLayout)
         p.set_defaults(run=run)
         return p
 
@@ -399,9 +406,11 @@ def _typ_text(entry) -> str:
 
 def _run_show(args) -> int:
     from pinlib.core.quantity import format_si
+    from pinlib.present.terminal import width, wrap
 
     lib = _load(args)
     data = _show_data(lib, args.id)
+    cols = width()
     if args.json:
         print(json.dumps(data, indent=2, ensure_ascii=False))
         return 0
@@ -419,9 +428,9 @@ def _run_show(args) -> int:
     prov = data["provenance"]
     bits = [prov["basis"]] + [b for b in (prov["source"], prov["recorded"] and
                                           f"recorded {prov['recorded']}", prov["by"]) if b]
-    print("  provenance: " + ", ".join(bits))
+    print("\n".join(wrap("provenance: " + ", ".join(bits), cols, "  ")))
     if data["description"]:
-        print("  " + data["description"])
+        print("\n".join(wrap(data["description"], cols, "  ", "")))
     if data["attributes"]:
         print()
         print(_table([[a["field"], str(a["value"]).lower() if isinstance(a["value"], bool)
@@ -451,9 +460,10 @@ def _run_show(args) -> int:
     else:
         print("(no values)")
     print()
-    print("basis '(part)': the value states no basis of its own and takes the provenance of "
-          "the file that set it (this part's, or the class's it inherits from); so does its "
-          "source when it states none.")
+    print("\n".join(wrap("basis '(part)': the value states no basis of its own and takes the "
+                         "provenance of the file that set it (this part's, or the class's it "
+                         "inherits from); so does its source when it states none.", cols,
+                         subsequent="")))
     return 0
 
 

@@ -13,12 +13,15 @@ __all__ = ["EXAMPLES", "add_arguments", "run_import"]
 
 EXAMPLES = """\
 examples:
-  pinlib parts import buffer.ibs                  (list components, pins and models)
-  pinlib parts import buffer.ibs --component DEMO-IO --pin SDA=i2c-sda --pin SCL=i2c-scl \\
-      --id demo-io --into parts --i-ol 3mA
+  # list the components, their pins and models
+  pinlib parts import buffer.ibs
+  pinlib parts import buffer.ibs --component DEMO-IO \\
+      --pin SDA=i2c-sda --pin SCL=i2c-scl --id demo-io --into parts --i-ol 3mA
 
-  pinlib parts import buffer.ibs --component DEMO-IO   (guess the pins' functions)
-  pinlib parts import buffer.ibs --component DEMO-IO --id demo-io --into parts --yes
+  # guess the pins' functions, then accept the guess
+  pinlib parts import buffer.ibs --component DEMO-IO
+  pinlib parts import buffer.ibs --component DEMO-IO --id demo-io \\
+      --into parts --yes
 
 --pin maps an IBIS pin (its name or signal name) to a pin function; each value written
 carries basis "ibis" and names the file, its revision, the [Model] and the corner used.

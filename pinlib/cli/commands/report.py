@@ -13,6 +13,7 @@ import sys
 from pathlib import Path
 
 from pinlib.cli import SUMMARIES
+from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
 
 __all__ = ["add_parser", "run", "chart_dir_for", "MONTE_CARLO_MODULES"]
@@ -20,7 +21,7 @@ __all__ = ["add_parser", "run", "chart_dir_for", "MONTE_CARLO_MODULES"]
 EXAMPLES = """\
 examples:
   pinlib report workbooks/designs/demo-board.toml --html demo-review.html
-  pinlib report board.toml --md review/board.md      # charts in review/board-charts/
+  pinlib report board.toml --md review/board.md  # charts: review/board-charts/
   pinlib report board.toml --html review.html --library ./parts
   pinlib report board.toml --html review.html --monte-carlo 10000 --seed 1
 
@@ -64,7 +65,7 @@ def add_parser(sub) -> None:
                     "the provenance of their values, and the changes against the saved "
                     "snapshot.",
         epilog=EXAMPLES,
-        formatter_class=argparse.RawDescriptionHelpFormatter,
+        formatter_class=HelpLayout,
     )
     p.add_argument("design", metavar="DESIGN", help="the design file (.toml)")
     out = p.add_mutually_exclusive_group(required=True)

@@ -7,11 +7,11 @@ generated from the design models); the part schema is built from the part models
 
 from __future__ import annotations
 
-import argparse
 import json
 import sys
 
 from pinlib.cli import SUMMARIES
+from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
 
 __all__ = ["add_parser", "run", "KINDS"]
@@ -37,7 +37,7 @@ def add_parser(sub) -> None:
         description="Print the JSON Schema (draft 2020-12) of design files "
                     "(pinlib.design/1) or part files (pinlib.part/1), for editors.",
         epilog=EXAMPLES,
-        formatter_class=argparse.RawDescriptionHelpFormatter,
+        formatter_class=HelpLayout,
     )
     p.add_argument("kind", metavar="KIND", help="design or part")
     p.add_argument("--output", metavar="FILE", default=None,

@@ -18,6 +18,7 @@ import re
 import sys
 
 from pinlib.cli import SUMMARIES
+from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
 
 __all__ = ["add_parser", "run", "threshold_type", "parse_assignments"]
@@ -66,7 +67,7 @@ def add_parser(sub) -> None:
                     "the part values behind the change. --write edits the design file in "
                     "place, keeping its comments and formatting.",
         epilog=EXAMPLES,
-        formatter_class=argparse.RawDescriptionHelpFormatter,
+        formatter_class=HelpLayout,
     )
     p.add_argument("design", metavar="DESIGN", help="the design file (.toml)")
     p.add_argument("swaps", metavar="REF=PART", nargs="*",

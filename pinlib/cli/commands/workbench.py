@@ -13,7 +13,6 @@ Only the loopback address is served, so no token is asked for: whoever can reach
 
 from __future__ import annotations
 
-import argparse
 import contextlib
 import os
 import sys
@@ -21,6 +20,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING
 
 from pinlib.cli import SUMMARIES
+from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 
@@ -41,8 +41,8 @@ START_TIMEOUT = 120.0  # s for the server to answer
 
 EXAMPLES = """\
 examples:
-  pinlib workbench                       # ./workbooks (a checkout, or a `pinlib demo` copy)
-  pinlib workbench pinlib-demo           # the folder `pinlib demo pinlib-demo` made
+  pinlib workbench                # ./workbooks: a checkout's or a demo copy's
+  pinlib workbench pinlib-demo    # the folder `pinlib demo pinlib-demo` made
   pinlib workbench --port 9000 ~/boards/workbooks
 
 Open the address it prints in a browser: a list of the workbooks, each a page with its
@@ -63,7 +63,7 @@ def add_parser(sub) -> None:
                     "controls, charts and tables but not their code, on this machine only "
                     "(127.0.0.1). Ctrl-C stops it.",
         epilog=EXAMPLES,
-        formatter_class=argparse.RawDescriptionHelpFormatter,
+        formatter_class=HelpLayout,
     )
     p.add_argument("folder", metavar="FOLDER", nargs="?", default=".",
                    help="the folder of the workbooks (*.ipynb), or one holding workbooks/ "

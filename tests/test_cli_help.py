@@ -1,0 +1,59 @@
+"""The help pages as a person reads them: every line fits the terminal (80 columns
+when the output is not one), prose filled to the width, examples kept as written."""
+
+from __future__ import annotations
+
+import argparse
+
+import pytest
+
+from pinlib.cli import build_parser
+from pinlib.cli.helptext import layout
+
+
+def _pages(parser, words=("pinlib",)):
+    """(command words, parser) for the command and every subcommand below it."""
+    yield words, parser
+    for action in parser._actions:
+        if isinstance(action, argparse._SubParsersAction):
+            for name, sub in action.choices.items():
+                yield from _pages(sub, words + (name,))
+
+
+@pytest.mark.parametrize("columns", [80, 100])
+def test_every_help_page_fits_the_terminal(monkeypatch, columns):
+    monkeypatch.setenv("COLUMNS", str(columns))
+    pages = list(_pages(build_parser()))
+    assert len(pages) > 15   # pinlib, its commands and the parts actions
+    long = [f"{' '.join(w)}: {ln!r}" for w, p in pages for ln in p.format_help().splitlines()
+            if len(ln) > columns]
+    assert not long, long
+
+
+def test_prose_follows_the_width(monkeypatch):
+    """A wider terminal gets longer lines of prose (argparse leaves two columns)."""
+    def widest(columns):
+        monkeypatch.setenv("COLUMNS", str(columns))
+        return max(len(ln) for _, p in _pages(build_parser())
+                   for ln in p.format_help().splitlines())
+
+    assert widest(80) <= 80 < widest(120) <= 120
+
+
+def test_layout_fills_prose_and_keeps_indented_lines():
+    text = ("examples:\n"
+            "  pinlib check board.toml --detail     # kept as written, however long it is\n"
+            "\n"
+            "First sentence of a paragraph written\n"
+            "over short lines. Second sentence.\n"
+            "\n"
+            "exit status: 0 pass.\n")
+    out = layout(text, 40)
+    assert out[:3] == ["examples:",
+                       "  pinlib check board.toml --detail     # kept as written, however "
+                       "long it is", ""]
+    assert out[3:] == ["First sentence of a paragraph written", "over short lines. Second "
+                       "sentence.", "", "exit status: 0 pass."]
+    # the words are the same words, in the same order
+    assert " ".join(" ".join(out).split()) == " ".join(text.split())
+    assert all(len(ln) <= 40 for ln in out[3:])
