@@ -69,3 +69,25 @@ def test_row_grids_are_checked_and_warn_per_step():
         wf.distributed_response(coarse, 1.0, 1e-9, 50.0, sections, 1e-12)
     # derived from the one-grid rule: a delay of 0.71 steps is rounded to one (+40 %)
     assert any(issubclass(w.category, ValidityWarning) for w in caught)
+
+
+def test_grids_made_otherwise_take_the_same_step_and_a_bad_row_is_refused():
+    from pinlib.physics.waveform.rowgrids import row_grids
+
+    steps = np.array([1.0e-11, 1.3e-11])  # invented
+    exact = np.arange(200)[None, :] * steps[:, None]
+    near = np.stack([np.linspace(0.0, 199 * s, 200) for s in steps])  # uniform to rounding
+    assert not np.array_equal(exact, near)  # the grid check's other branch is taken
+    for t in (exact, near):
+        got, dt = row_grids(t)
+        assert got is t or np.array_equal(got, t)
+        # derived from the one-grid rule: a row's step is (t[-1] - t[0]) / (n - 1)
+        assert np.array_equal(dt, (t[:, -1] - t[:, 0]) / 199)
+    bad = exact.copy()
+    bad[1, 50] += 0.5 * steps[1]  # one sample half a step late
+    with pytest.raises(wf.InputError):
+        row_grids(bad)
+    near_bad = near.copy()
+    near_bad[0, 120] += 0.5 * steps[0]
+    with pytest.raises(wf.InputError):
+        row_grids(near_bad)

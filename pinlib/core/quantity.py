@@ -269,6 +269,8 @@ class Threshold:
 
     def resolve(self, vdd):
         """The threshold at a supply voltage (scalar or numpy array). [V]"""
+        if isinstance(vdd, (float, int)):  # one number (numpy's float64 among them)
+            return self.offset if self.scale == 0.0 else self.scale * float(vdd) + self.offset
         if self.scale == 0.0:
             return self.offset if np.ndim(vdd) == 0 else np.full(np.shape(vdd), self.offset)
         return self.scale * np.asarray(vdd, dtype=float) + self.offset if np.ndim(vdd) else (

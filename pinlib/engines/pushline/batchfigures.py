@@ -87,13 +87,25 @@ def _store(t: np.ndarray, v: np.ndarray, rows: list) -> None:
                   (float(t_edge[i]), float(over[i]), float(under[i])))
     for edge in ("rise", "fall"):
         mine = [i for i, u in enumerate(uses) if u.edge == edge]
-        _crossings(t, rec, n, keys, uses, mine, edge)
-        _recrossings(t, rec, n, keys, uses, mine, edge)
+        if not mine:
+            continue
+        # the edge's rows taken once; a slot that asks of all of them reads these whole
+        part = (_rows(t, mine), rec[mine], n[mine], [keys[i] for i in mine],
+                [uses[i] for i in mine])
+        _crossings(*part, list(range(len(mine))), edge)
+        _recrossings(*part, list(range(len(mine))), edge)
 
 
 def _rows(t: np.ndarray, sel: list) -> np.ndarray:
     """The time grids of rows ``sel``: the one shared axis, or each row's own."""
     return t[sel] if t.ndim > 1 else t
+
+
+def _taken(t: np.ndarray, rec: np.ndarray, n: np.ndarray, sel: list) -> tuple:
+    """Grids, records and sample counts of rows ``sel`` (no copy when they are all)."""
+    if len(sel) == rec.shape[0]:
+        return t, rec, n
+    return _rows(t, sel), rec[sel], n[sel]
 
 
 def _slots(mine: list, count) -> list[tuple[int, list[int]]]:
@@ -105,7 +117,8 @@ def _slots(mine: list, count) -> list[tuple[int, list[int]]]:
 def _crossings(t, rec, n, keys, uses, mine, edge) -> None:
     for s, sel in _slots(mine, lambda i: len(uses[i].levels)):
         levels = np.array([uses[i].levels[s] for i in sel])
-        got = wf.threshold_delay(_rows(t, sel), rec[sel], levels, edge=edge, n_valid=n[sel])
+        ts, rs, ns = _taken(t, rec, n, sel)
+        got = wf.threshold_delay(ts, rs, levels, edge=edge, n_valid=ns)
         for i, tc in zip(sel, got, strict=True):
             u = uses[i]
             memo.keep(crossing_key(keys[i], u.v_from, u.v_to, edge, u.levels[s]), float(tc))
@@ -115,8 +128,8 @@ def _recrossings(t, rec, n, keys, uses, mine, edge) -> None:
     for s, sel in _slots(mine, lambda i: len(uses[i].pairs)):
         v_il = np.array([uses[i].pairs[s][0] for i in sel])
         v_ih = np.array([uses[i].pairs[s][1] for i in sel])
-        got = wf.recrossings(_rows(t, sel), rec[sel], v_il, v_ih, edge=edge,
-                             n_valid=n[sel])
+        ts, rs, ns = _taken(t, rec, n, sel)
+        got = wf.recrossings(ts, rs, v_il, v_ih, edge=edge, n_valid=ns)
         for j, i in enumerate(sel):
             u = uses[i]
             memo.keep(recrossings_key(keys[i], u.v_from, u.v_to, edge, *u.pairs[s]),

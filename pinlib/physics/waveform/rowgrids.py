@@ -63,6 +63,8 @@ def row_grids(t) -> tuple[np.ndarray, np.ndarray]:
         raise InputError(M.TIME_GRID_FORM, field="t", value=t.shape,
                          expected="np.arange(n) * dt, or one such row per case")
     dt = (t[:, -1] - t[:, 0]) / (t.shape[1] - 1)
+    if np.all(t[:, 1] > 0.0) and np.array_equal(t, np.arange(t.shape[1]) * t[:, 1:2]):
+        return t, dt  # each row exactly np.arange(n) * its step (as batched callers make it)
     steps = np.diff(t, axis=1)
     if not np.all(dt > 0.0) or not np.allclose(steps, dt[:, None], rtol=_GRID_RTOL,
                                                  atol=0.0):
@@ -115,10 +117,13 @@ def tree_rows(t, vdd, t_ramp, r_source, sections, node_caps, source, edge, *,
                        2, axis=0)                                # (P, B) in steps
     v_src = _source_samples(t, vdd_b, ramp_b).T                 # (n, B)
     volts = _in_parts(net, delays, v_src, n_t)                  # (merged, n, B)
+    if not np.array_equal(node_of, np.arange(n_merged)):
+        volts = volts[node_of]
     if sign < 0:
         volts = vdd_b - volts
-    # each case's samples contiguous, as the one-grid path gives them
-    return TreeWaveform(t, np.ascontiguousarray(np.transpose(volts[node_of], (2, 0, 1))))
+    # each case's samples contiguous, as the one-grid path gives them (the march lays
+    # them out so: no copy here unless nodes were merged)
+    return TreeWaveform(t, np.ascontiguousarray(np.transpose(volts, (2, 0, 1))))
 
 
 def _rows(net: Network, cols) -> Network:
@@ -141,7 +146,7 @@ def _in_parts(net: Network, delays: np.ndarray, v_src: np.ndarray, n_t: int) -> 
                     > 4 * _MAX_BUFFER_ELEMENTS):
         order = np.argsort(block, kind="stable")
         halves = (order[:n_b // 2], order[n_b // 2:])
-        out = np.empty((net.a.shape[0], n_t, n_b))
+        out = np.empty((n_b, net.a.shape[0], n_t)).transpose(1, 2, 0)  # as march_rows
         for cols in halves:
             out[:, :, cols] = _in_parts(_rows(net, cols), delays[:, cols], v_src[:, cols],
                                         n_t)
@@ -158,7 +163,8 @@ def _blocks(delays: np.ndarray, n_t: int) -> np.ndarray:
 
 
 def march_rows(net: Network, delays: np.ndarray, v_src: np.ndarray, n_t: int) -> np.ndarray:
-    """Every node's voltage at every step of each case's own grid, ``(nodes, n_t, B)``.
+    """Every node's voltage at every step of each case's own grid, ``(nodes, n_t, B)``
+    (a view of an array laid out ``(B, nodes, n_t)``: each case's samples contiguous).
 
     ``net`` holds each case's companion coefficients (its own step); ``delays`` is
     ``(P, B)``, each port's line delay in that case's steps; ``v_src`` ``(n_t, B)``.
@@ -226,9 +232,9 @@ def march_rows(net: Network, delays: np.ndarray, v_src: np.ndarray, n_t: int) ->
             launched[put + start] = (w if one_each else w[net.port_node]) - inc
         i_last = cur[:, block - 1, cols]
         v_last = w[:, block - 1, cols]
-    volts = np.empty((n_nodes, n_t, n_b))
-    volts[:, 0] = first
+    volts = np.empty((n_b, n_nodes, n_t))
+    volts[:, :, 0] = first.T
     for r in range(n_b):  # each case's runs, its own steps of each, in order
         k = int(block[r])
-        volts[:, 1:, r] = out[:, :, :k, r].reshape(n_nodes, runs * k)[:, :n_t - 1]
-    return volts
+        volts[r, :, 1:] = out[:, :, :k, r].reshape(n_nodes, runs * k)[:, :n_t - 1]
+    return volts.transpose(1, 2, 0)
