@@ -20,7 +20,6 @@ import copy
 import datetime as _dt
 import difflib
 import re
-import sys
 from pathlib import Path
 
 import tomlkit
@@ -28,15 +27,10 @@ from tomlkit.items import InlineTable, Table
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, LibraryError, PinlibError, WriteError
-from pinlib.core.tomlfile import atomic_write, file_lock, line_index, line_of
+from pinlib.core.tomlfile import atomic_write, file_lock, line_index, line_of, tomllib
 from pinlib.library import loader
 from pinlib.library.fields import resolve_path
 from pinlib.library.schema import FORMAT
-
-if sys.version_info >= (3, 11):
-    import tomllib
-else:  # pragma: no cover - exercised on 3.10 only
-    import tomli as tomllib
 
 __all__ = ["RECORD_BASES", "new_part", "record_value"]
 
