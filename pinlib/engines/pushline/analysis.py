@@ -115,8 +115,10 @@ def _others(pins: Sequence[Endpoint], driver: Endpoint) -> list[Endpoint]:
 
 def _case(a: LineAnalysis, d: Endpoint, rs: float, rp=None, vp=None) -> DriveCase:
     """One driver's case: at its own point of a route, else with every pin at the far end."""
+    # a route keeps the records of the receivers' points (and the farthest load's)
     solve = drive_case if a.net is None else (
-        lambda *args, **kw: route_case(a.net, *args, **kw))
+        lambda *args, **kw: route_case(a.net, *args, **kw,
+                                       sensed=[r.ref for r in a.receivers]))
     return solve(a.stretches, d, a.models[d.ref], _others(a.loads, d), rs,
                  a.line.extra_capacitance, long=a.long, r_pullup=rp, v_pullup=vp)
 

@@ -339,16 +339,22 @@ def _fast_edges(stretches: Sequence[Stretch], fast: drv.Driver, rs: float, c_far
 def route_case(net: RouteNet, stretches: Sequence[Stretch], driver: Endpoint,
                model: drv.Driver, loads: Sequence[Endpoint], rs: float, extra_c: float, *,
                long: bool, r_pullup: float | None = None,
-               v_pullup: float | None = None) -> DriveCase:
+               v_pullup: float | None = None,
+               sensed: Sequence[str] | None = None) -> DriveCase:
     """Both edges of one driver at its own point of a routed line, at every point.
 
     Parameters are those of :func:`drive_case`, with ``net`` the route's tree: each
     load's capacitance sits at its own point, the extra capacitance at the route's far
     point.  ``rise`` and ``fall`` of the case are the edges at the load farthest in delay
-    from the driver; :meth:`DriveCase.wave_at` gives any device's.
+    from the driver; :meth:`DriveCase.wave_at` gives any device's.  ``sensed``: the
+    devices whose edges the checks read (the line's receivers); the records of the other
+    points are not kept (made again if read), None keeps every point's.
     """
     caps = node_caps(net, {p.ref: p.c_in for p in loads}, extra_c)
     src = net.node(driver.ref)
+    delays = net.delays_from(src)
+    far = max((net.node(p.ref) for p in loads), key=delays.__getitem__, default=src)
+    keep = None if sensed is None else [far, *(net.node(r) for r in sensed)]
     plan = edge_plan(stretches, driver, model, loads, rs, extra_c, long=long,
                      r_pullup=r_pullup, v_pullup=v_pullup)
     c_far, distributed, v_lo, v_hi = plan.c_far, plan.distributed, plan.v_low, plan.v_high
@@ -356,18 +362,16 @@ def route_case(net: RouteNet, stretches: Sequence[Stretch], driver: Endpoint,
     for edge, (r, ramp, _, v_from, v_to), dist in (
             ("rise", plan.rise, plan.rise_distributed), ("fall", plan.fall, distributed)):
         points[edge] = tree_edges(net, src, r, ramp, caps, v_from, v_to, distributed=dist,
-                                  edge=edge)
+                                  edge=edge, keep=keep)
     ref = ref_times(driver, model, plan, r_pullup)
     fast = None
     if driver.pin.drive != "open-drain" and model.fast is not None:
         f = model.fast
         f_dist = _fast_distributed(stretches, f, rs, c_far, long)
         fast = {"rise": tree_edges(net, src, f.r_rise + rs, f.t_ramp_rise, caps, 0.0, v_hi,
-                                   distributed=f_dist, edge="rise"),
+                                   distributed=f_dist, edge="rise", keep=keep),
                 "fall": tree_edges(net, src, f.r_fall + rs, f.t_ramp_fall, caps, v_hi, 0.0,
-                                   distributed=f_dist, edge="fall")}
-    delays = net.delays_from(src)
-    far = max((net.node(p.ref) for p in loads), key=delays.__getitem__, default=src)
+                                   distributed=f_dist, edge="fall", keep=keep)}
     fast_far = (None, None) if fast is None else (fast["rise"].at(far), fast["fall"].at(far))
     return DriveCase(driver, model, rs, c_far, distributed, points["rise"].at(far),
                      points["fall"].at(far), ref, v_lo, v_hi, *fast_far, net, points,

@@ -152,7 +152,8 @@ class PointWaves:
                  span=None, rows=None):
         self.edge, self.t, self.v_from, self.v_to = edge, t, float(v_from), float(v_to)
         # the solve's rows: ``rows[node]`` is a node's row (a solve shared by drivers that
-        # see the same tree, in its own node order; None: the node's own)
+        # see the same tree, in its own node order; None: the node's own); ``unit`` the
+        # unit response at every row, or the :class:`TreeSolve` that holds some of them
         self._unit, self._settled, self._span, self._rows = unit, settled, span, rows
         self._made: dict[int, EdgeWave] = {}
         self._extremes: tuple | None = None
@@ -162,6 +163,12 @@ class PointWaves:
         if self._rows is None:
             return node
         return self._rows[node] if np.ndim(node) == 0 else [self._rows[n] for n in node]
+
+    def _records(self, rows):
+        """The unit response of solve rows ``rows`` (an int or a list). [1]"""
+        if isinstance(self._unit, TreeSolve):
+            return self._unit.records(rows)
+        return self._unit[rows]
 
     def extremes(self) -> tuple[np.ndarray, np.ndarray]:
         """At every node at once: the peak (the high level plus the overshoot) and the dip
@@ -182,7 +189,7 @@ class PointWaves:
 
     def edge_times(self, nodes) -> np.ndarray:
         """The 10-90 % edge at the given nodes (NaN where it is not reached). [s]"""
-        v = self.v_from + (self.v_to - self.v_from) * self._unit[self._row(list(nodes))]
+        v = self.v_from + (self.v_to - self.v_from) * self._records(self._row(list(nodes)))
         return np.asarray(wf.edge_time(self.t, v, self.v_to, v_initial=self.v_from),
                           dtype=float)
 
@@ -191,11 +198,12 @@ class PointWaves:
         got = self._made.get(node)
         if got is None:
             row = self._row(node)
-            v = self.v_from + (self.v_to - self.v_from) * self._unit[row]
+            record = self._records(row)
+            v = self.v_from + (self.v_to - self.v_from) * record
             hi, lo = max(self.v_from, self.v_to), min(self.v_from, self.v_to)
             # its record made again from the unit response when read, the same way (a
             # line of many drivers reads the records of few of its edges)
-            got = UnitEdgeWave(self.edge, (self.t, self._unit[row]), self.v_from, self.v_to,
+            got = UnitEdgeWave(self.edge, (self.t, record), self.v_from, self.v_to,
                                float(wf.edge_time(self.t, v, self.v_to,
                                                   v_initial=self.v_from)),
                                float(wf.overshoot(v, hi)), float(wf.undershoot(v, lo)),
@@ -206,7 +214,7 @@ class PointWaves:
 
 def tree_edges(net: RouteNet, source: int, r_source: float, t_ramp: float,
                caps: Sequence[float], v_from: float, v_to: float, *, distributed: bool,
-               edge: str) -> PointWaves:
+               edge: str, keep: Sequence[int] | None = None) -> PointWaves:
     """One edge of a ramp source behind a resistance at node ``source``, at every node.
 
     Parameters
@@ -228,6 +236,10 @@ def tree_edges(net: RouteNet, source: int, r_source: float, t_ramp: float,
         (False). [1]
     edge : str
         ``"rise"`` or ``"fall"``. [1]
+    keep : sequence of int, optional
+        The nodes whose records are kept (those a check reads); the others' are dropped
+        after the solve, each node's extremes and whether it settled kept, and made
+        again by the same solve if read.  None keeps every node's. [1]
 
     Returns
     -------
@@ -250,14 +262,61 @@ def tree_edges(net: RouteNet, source: int, r_source: float, t_ramp: float,
     # in its own node order
     shape, order = shape_from(net.sections, caps, source)
     key = ("pushline.tree_edge", shape, r_source, t_ramp, bool(distributed), tau, t_end)
-    t, unit, settled, span, solved = memo.remember(
-        key, lambda: (*_unit_tree(net, source, r_source, t_ramp, caps, distributed, tau,
-                                  t_end), order))
+
+    def solve():
+        return _unit_tree(net, source, r_source, t_ramp, caps, distributed, tau, t_end)
+
+    held = memo.remember(key, lambda: TreeSolve(solve, order))
     rows = None
-    if solved != order:
+    if held.order != order:
         rows = np.empty(len(order), dtype=int)
-        rows[order] = solved
-    return PointWaves(edge, t, unit, settled, v_from, v_to, span=span, rows=rows)
+        rows[order] = held.order
+    wanted = range(len(order)) if keep is None else keep
+    held.hold([int(n) if rows is None else int(rows[n]) for n in wanted])
+    return PointWaves(edge, held.t, held, held.settled, v_from, v_to, span=held.span,
+                      rows=rows)
+
+
+class TreeSolve:
+    """One solve of :func:`tree_edges`, shared through the memo by the drivers that see
+    the same tree: the grid, whether each node settled and its extremes (:func:`_span`),
+    and the records of the rows asked for (:meth:`hold`).  A row asked for after the
+    solve's own array was let go is the same solve made again (the same numbers to the
+    bit), once for all the rows missing then.
+
+    Attributes
+    ----------
+    t : numpy.ndarray
+        Sample times. [s]
+    settled, span : numpy.ndarray
+        Per row (the solving driver's node order, :attr:`order`). [1]
+    order : list of int
+        The solving driver's nodes in the shape's order. [1]
+    """
+
+    def __init__(self, solve, order: list[int]):
+        self._solve, self.order = solve, order
+        self.t, self._unit, self.settled, self.span = solve()
+        self._held: dict[int, np.ndarray] = {}
+
+    def hold(self, rows) -> None:
+        """Keep the records of ``rows``; the solve's whole array is let go after the
+        first rows are chosen."""
+        missing = sorted(set(rows) - self._held.keys())
+        if missing:
+            unit = self._unit if self._unit is not None else self._solve()[1]
+            every = len(missing) == unit.shape[0]
+            got = unit if every else unit[missing]  # a copy of only those rows
+            self._held.update(zip(missing, got if every else list(got), strict=True))
+        self._unit = None
+
+    def records(self, rows):
+        """The records of solve rows ``rows`` (an int or a list), held on first use. [1]"""
+        self.hold([rows] if np.ndim(rows) == 0 else list(rows))
+        if np.ndim(rows) == 0:
+            return self._held[rows]
+        return np.stack([self._held[r] for r in rows]) if len(rows) else np.empty(
+            (0, self.t.size))
 
 
 def _span(unit: np.ndarray) -> np.ndarray:

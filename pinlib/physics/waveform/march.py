@@ -25,7 +25,11 @@ and run (``_run_matrix``): about ten numpy calls a run instead of 25-35, where t
 calls' fixed cost, not the arithmetic, is the time.  A delay that is not a whole number
 of steps reads the launched wave by linear interpolation.
 
-Layout inside: ``(node or port, time, batch)``.
+Layout inside: a batch marches time-major, ``(time, node or port, batch)``: a run of
+the record is one contiguous slab, summed in the returned array itself, and the
+launched waves sit in a window that slides instead of a ring read modulo its length;
+a single case ``(node or port, time)``.  A batch whose cases share one source reads
+its samples from one row.
 """
 
 from __future__ import annotations
@@ -222,26 +226,111 @@ def _run_length(net: Network, n_t: int) -> int:
 
 
 class _Scan:
-    """``v[k] = a v[k-1] + w[k]`` over a run from ``v_last``, summed by doubling."""
+    """``v[k] = a v[k-1] + w[k]`` over a run from ``v_last``, summed in place by doubling
+    (after pass ``j`` each sample holds ``sum a^i w[k - i]`` over ``2^(j+1)`` terms).
 
-    def __init__(self, a: np.ndarray, block: int):
-        self.a_pow = a[:, None, :] ** np.arange(1, block + 1)[None, :, None]  # (N, k, B)
+    ``time`` is the run's axis in ``w`` (1 for ``(nodes, m, B)``, 0 for ``(m, nodes,
+    B)``); the sums are the same in either layout, element for element.
+    """
+
+    def __init__(self, a: np.ndarray, block: int, time: int = 1):
+        steps = np.arange(1, block + 1)
+        if time == 1:
+            self.a_pow = a[:, None, :] ** steps[None, :, None]                 # (N, k, B)
+        else:
+            self.a_pow = a[None, :, :] ** steps[:, None, None]                 # (k, N, B)
+        self.time = time
         self.doubling = []
         x, span = a, 1
         while span < block:
-            self.doubling.append(x[:, None, :])
+            self.doubling.append(np.expand_dims(x, time))
             x = x * x
             span *= 2
+        self.tmp = np.empty_like(self.a_pow)
 
     def __call__(self, w: np.ndarray, v_last: np.ndarray) -> np.ndarray:
-        m, span = w.shape[1], 1
+        m, span = w.shape[self.time], 1
+        t = (slice(None),) * self.time
         for power in self.doubling:
             if span >= m:
                 break
-            w[:, span:] += power * w[:, :-span]
+            tmp = self.tmp[t + (slice(0, m - span),)]
+            np.multiply(power, w[t + (slice(0, m - span),)], out=tmp)
+            w[t + (slice(span, m),)] += tmp
             span *= 2
-        w += self.a_pow[:, :m] * v_last[:, None, :]
+        tmp = self.tmp[t + (slice(0, m),)]
+        np.multiply(self.a_pow[t + (slice(0, m),)], np.expand_dims(v_last, self.time), out=tmp)
+        w += tmp
         return w
+
+
+def _port_groups(net: Network) -> list[list[int]]:
+    """The ports at each node, in port order (a node's current sums them in it)."""
+    groups: list[list[int]] = [[] for _ in range(net.a.shape[0])]
+    for p, node in enumerate(net.port_node.tolist()):
+        groups[node].append(p)
+    return groups
+
+
+def _node_sums(terms: np.ndarray, groups: list[list[int]], out: np.ndarray, axis: int):
+    """``out`` along ``axis``: each node's sum of its ports' ``terms`` (in port order;
+    0 for a node without a port)."""
+    def at(a, i):
+        return a[(slice(None),) * axis + (i,)]
+
+    for node, ports in enumerate(groups):
+        dst = at(out, node)
+        if not ports:
+            dst.fill(0.0)
+        elif len(ports) == 1:
+            dst[...] = at(terms, ports[0])
+        else:
+            np.add(at(terms, ports[0]), at(terms, ports[1]), out=dst)
+            for p in ports[2:]:
+                dst += at(terms, p)
+    return out
+
+
+class _Waves:
+    """The waves launched into every port, time-major ``(steps, P, B)``, in a window.
+
+    Step ``s`` sits at row ``pad + s - base``; a run reads at most one longest delay
+    back, so when a run's writes would pass the window's end its last ``pad`` rows are
+    moved to the front (``base`` becomes the run's first step).  The window holds the
+    whole record when that fits in :data:`_MAX_BUFFER_ELEMENTS`.
+    """
+
+    def __init__(self, net: Network, block: int, n_t: int):
+        n_ports, n_b = net.port_node.size, net.a.shape[1]
+        self.pad = int(net.port_delay.max()) + 1
+        span = n_t
+        if n_ports * (self.pad + n_t) * n_b > _MAX_BUFFER_ELEMENTS:
+            span = block * -(-2 * self.pad // block)
+        self.rows = np.zeros(((self.pad + span) * n_ports, n_b))
+        self.size, self.n_ports, self.base = self.pad + span, n_ports, 0
+        # port p reads its partner's wave from one step before the run's start delayed
+        steps = (self.pad - 1 - net.port_delay)[None, :] + np.arange(block + 1)[:, None]
+        self.reach = steps * n_ports + net.port_partner[None, :]          # (block + 1, P)
+        self.frac = net.port_frac[None, :, None] if np.any(net.port_frac > 0.0) else None
+
+    def incident(self, n: int, m: int) -> np.ndarray:
+        """The waves arriving at every port over steps ``n .. n + m - 1``: ``(m, P, B)``."""
+        if self.pad + n - self.base + m > self.size:  # slide the window
+            keep = (n - self.base) * self.n_ports
+            self.rows[:self.pad * self.n_ports] = self.rows[keep:keep + self.pad * self.n_ports]
+            self.base = n
+        got = self.rows.take(self.reach[:m + 1] + (n - self.base) * self.n_ports, axis=0)
+        inc = got[1:]
+        if self.frac is not None:  # a delay between two samples: linear interpolation
+            inc = inc + self.frac * (got[:-1] - inc)
+        return inc
+
+    def launch(self, n: int, out_waves: np.ndarray, inc: np.ndarray, port_node) -> None:
+        """Store the waves sent at steps ``n ..``: each port's node voltage less the
+        wave that arrived (``out_waves`` ``(m, nodes, B)``)."""
+        m, start = inc.shape[0], (self.pad + n - self.base) * self.n_ports
+        dst = self.rows[start:start + m * self.n_ports].reshape(inc.shape)
+        np.subtract(out_waves.take(port_node, axis=1), inc, out=dst)
 
 
 def _run_matrix(net: Network, block: int) -> np.ndarray:
@@ -264,66 +353,42 @@ def _run_matrix(net: Network, block: int) -> np.ndarray:
 
 
 def march(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
-    """Every node's voltage at every step, ``(nodes, n_t, B)``; ``v_src`` is ``(n_t, B)``."""
+    """Every node's voltage at every step, ``(nodes, n_t, B)`` (a view of a time-major
+    array for a batch); ``v_src`` is ``(n_t, B)``, or ``(n_t, 1)`` for one source."""
     n_nodes, n_b = net.a.shape
     block = _run_length(net, n_t)
     n_ports = net.port_node.size
     # one case on short runs, its launched waves kept whole (else the ring below)
     if n_b == 1 and n_ports and block <= _SINGLE_BLOCK:
         return _march_single(net, v_src, n_t)
-    src = net.source
-    scan = _Scan(net.a, block)
-    c_now, c_prev = net.c_now[:, None, :], net.c_prev[:, None, :]
-    two_g = 2.0 * net.port_g[:, None, :]
-    forced = net.forced[None, :]
-    # Waves launched into each port's line: step s at index pad + s, in a buffer as long
-    # as the record when it fits, else a ring of one longest delay plus one run.
-    pad = (int(net.port_delay.max()) + 1) if n_ports else 1
-    full = n_ports * (pad + n_t) * n_b <= _MAX_BUFFER_ELEMENTS
-    size = pad + n_t if full else pad + block
-    launched = np.zeros((n_ports, size, n_b))
-    # samples from one before the delayed start of a run to its end: (P, block + 1)
-    reach = pad - 1 - net.port_delay[:, None] + np.arange(block + 1)[None, :]
-    partner = net.port_partner[:, None]
-    frac = net.port_frac[:, None, None] if np.any(net.port_frac > 0.0) else None
-
-    volts = np.empty((n_nodes, n_t, n_b))
-    v_last = np.zeros((n_nodes, n_b))
+    src, a, g_src = net.source, net.a, net.g_source
+    two_g = 2.0 * net.port_g[None]                                      # (1, P, B)
+    groups = _port_groups(net)
+    waves = _Waves(net, block, n_t) if n_ports else None
+    volts = np.empty((n_t, n_nodes, n_b))                               # time-major
+    scan = _Scan(a, block, time=0)
     i_last = np.zeros((n_nodes, n_b))
-    i_last[src] = net.g_source * v_src[0]
-    v_last[src] = np.where(net.forced, v_src[0], 0.0)
-    volts[:, 0] = v_last
-    n = 1
-    while n < n_t:
+    i_last[src] = g_src * v_src[0]
+    volts[0] = 0.0
+    volts[0, src] = np.where(net.forced, v_src[0], 0.0)
+    for n in range(1, n_t, block):
         m = min(block, n_t - n)
         here = slice(n, n + m)
-        where = reach[:, :m + 1] + n
-        got = launched[partner, where if full else where % size]    # (P, m + 1, B)
-        inc = got[:, 1:]
-        if frac is not None:  # a delay between two samples: linear interpolation
-            inc = inc + frac * (got[:, :-1] - inc)
-        if n_ports:
-            cur = np.matmul(net.incidence, (two_g * inc).reshape(n_ports, -1))
-            cur = cur.reshape(n_nodes, m, n_b)
+        if waves is not None:
+            inc = waves.incident(n, m)
+            cur = _node_sums(two_g * inc, groups, np.empty((m, n_nodes, n_b)), axis=1)
         else:
-            cur = np.zeros((n_nodes, m, n_b))
-        cur[src] += net.g_source * v_src[here]
-        w = c_now * cur
-        w[:, 0] += net.c_prev * i_last
-        w[:, 1:] += c_prev * cur[:, :-1]
-        w = scan(w, v_last)
-        w[src] = np.where(forced, v_src[here], w[src])
-        volts[:, here] = w
-        if n_ports:
-            out = w[net.port_node] - inc
-            if full:
-                launched[:, pad + n:pad + n + m] = out
-            else:
-                launched[:, (pad + n + np.arange(m)) % size] = out
-        i_last = cur[:, -1]
-        v_last = w[:, -1]
-        n += m
-    return volts
+            cur = np.zeros((m, n_nodes, n_b))
+        cur[:, src] += g_src * v_src[here]
+        w = np.multiply(net.c_now, cur, out=volts[here])               # the run in place
+        w[0] += net.c_prev * i_last
+        w[1:] += net.c_prev * cur[:-1]
+        scan(w, volts[n - 1])
+        w[:, src] = np.where(net.forced, v_src[here], w[:, src])
+        if waves is not None:
+            waves.launch(n, w, inc, net.port_node)
+        i_last = cur[-1]
+    return volts.transpose(1, 0, 2)
 
 
 def _march_single(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:

@@ -38,7 +38,9 @@ from pinlib.physics.waveform.march import (
     _MAX_BLOCK_ELEMENTS,
     _MAX_BUFFER_ELEMENTS,
     Network,
+    _node_sums,
     _non_negative,
+    _port_groups,
     _Scan,
     _source_samples,
     network,
@@ -200,6 +202,7 @@ def march_rows(net: Network, delays: np.ndarray, v_src: np.ndarray, n_t: int) ->
            + pad + np.arange(k_max)[None, :, None])                    # (P, K, B)
     frac = frac[:, None, :] if np.any(frac > 0.0) else None
     one_each = n_ports == n_nodes and np.array_equal(net.port_node, np.arange(n_nodes))
+    groups = _port_groups(net)
 
     out = np.empty((n_nodes, runs, k_max, n_b))
     v_last = np.zeros((n_nodes, n_b))
@@ -217,9 +220,8 @@ def march_rows(net: Network, delays: np.ndarray, v_src: np.ndarray, n_t: int) ->
                 inc = inc + frac * (got[:, :-1] - inc)
             if one_each:  # a port per node, in order: the incidence is the identity
                 cur = two_g * inc
-            else:
-                cur = np.matmul(net.incidence, (two_g * inc).reshape(n_ports, -1))
-                cur = cur.reshape(n_nodes, k_max, n_b)
+            else:  # each node's ports summed in port order, as the march sums them
+                cur = _node_sums(two_g * inc, groups, np.empty((n_nodes, k_max, n_b)), axis=0)
         else:
             cur = np.zeros((n_nodes, k_max, n_b))
         cur[src] += net.g_source * v_here

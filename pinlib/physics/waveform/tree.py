@@ -153,10 +153,11 @@ def _tree(t, vdd, t_ramp, r_source, sections, node_caps, source, edge, *,
     merged_lines = [(node_of[a], node_of[b], z, d)
                     for (a, b, _, d), z in zip(lines, z_b, strict=True)]
     net = network(n_merged, merged_lines, caps, rs_b, int(node_of[source]), dt)
-    v_src = _source_samples(t, vdd_b, ramp_b).T                 # (n, B)
+    one = arrays[0].size == 1 and arrays[1].size == 1  # one source for the whole batch
+    v_src = _source_samples(t, vdd_b[:1] if one else vdd_b, ramp_b[:1] if one else ramp_b).T
     volts = march(net, v_src, n_t)                              # (merged, n, B)
     if sign < 0:
-        volts = vdd_b - volts
+        volts = np.subtract(vdd_b, volts, out=volts)
     if n_merged < n_nodes:  # joined nodes share their solver node's waveform
         volts = volts[node_of]
     v = np.transpose(volts, (2, 0, 1)).reshape(batch_shape + (n_nodes, n_t))
