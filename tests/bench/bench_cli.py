@@ -9,6 +9,13 @@ command runs as ``python -m pinlib`` from this checkout (working folder and
 The command keeps its driver fits between runs (:mod:`pinlib.engines.fitstore`): the
 timed runs are the repeat runs a user makes (the store warm, in a temporary folder);
 the first run, with an empty store, is reported beside them.
+
+The command runs numpy's BLAS on one thread (:func:`pinlib.cli.startup.one_blas_thread`)
+while a plain ``python -c "import numpy"`` starts a pool of BLAS threads, which on a
+busy machine can take as long as the rest of the import (measured here under load:
+120-140 ms with the pool, 70 ms on one thread).  So the baseline is timed both ways, in
+the same turns, and the verdict takes the larger of the two ratios: a loaded machine
+cannot make the target pass by slowing the baseline alone.
 """
 
 from __future__ import annotations
@@ -31,8 +38,9 @@ def _command() -> list[str]:
     return [sys.executable, "-m", "pinlib"]
 
 
-def _run(args: list[str], cache: str = "off") -> None:
+def _run(args: list[str], cache: str = "off", **extra: str) -> None:
     env = dict(os.environ)
+    env.update(extra)
     env["PINLIB_CACHE_DIR"] = cache
     env.pop("PINLIB_LIBRARY", None)
     env["PYTHONPATH"] = os.pathsep.join(p for p in (str(ROOT), env.get("PYTHONPATH")) if p)
@@ -69,18 +77,26 @@ def run(repeats: int = 7, quick: bool = False) -> list[Result]:
     with tempfile.TemporaryDirectory(prefix="pinlib-bench-fits-") as warm:
         # The runs take turns (check, numpy, bare, cold check, ...) so that the ratios
         # compare runs made under the same load of the shared machine.
-        t_check, t_numpy, t_bare, t_cold = in_turn([
+        t_check, t_numpy, t_one, t_bare, t_cold = in_turn([
             lambda: _run(cmd, warm),  # its warm-up run fills the store
             lambda: _run([sys.executable, "-c", "import numpy"]),
+            lambda: _run([sys.executable, "-c", "import numpy"], OPENBLAS_NUM_THREADS="1"),
             lambda: _run([sys.executable, "-c", "pass"]),
             lambda: _run(cmd, "off"),
         ], repeats)
     heavy = heavy_imports()
-    ratio = t_check / t_numpy
-    return [Result("pinlib check demo (fresh process)", t_check, "python -c 'import numpy'",
-                   t_numpy, ratio, "of an interpreter importing numpy",
+    # the stricter of the two baselines decides (see the module)
+    t_base, how = max((t_numpy, "its BLAS pool"), (t_one, "BLAS on one thread, as pinlib"),
+                      key=lambda b: t_check / b[0])
+    ratio = t_check / t_base
+    other = t_one if t_base is t_numpy else t_numpy
+    return [Result("pinlib check demo (fresh process)", t_check,
+                   f"python -c 'import numpy' ({how})", t_base, ratio,
+                   "of an interpreter importing numpy",
                    target=f"<= {TARGET_RATIO:g}x", passed=ratio <= TARGET_RATIO,
-                   extra=[f"fits from the store; {t_cold * 1e3:.0f} ms computing them",
+                   extra=[f"{t_check / other:.3g}x of the other baseline "
+                          f"({other * 1e3:.0f} ms)",
+                          f"fits from the store; {t_cold * 1e3:.0f} ms computing them",
                           f"bare interpreter {t_bare * 1e3:.0f} ms "
                           f"({t_check / t_bare:.3g}x)",
                           "heavy imports: " + (", ".join(heavy) if heavy else "none")])]
