@@ -63,6 +63,10 @@ _BLOCK = 32
 #: so a step costs O(K); 16-32 were fastest on the crosstalk bench (25 cm pair: 210 ms
 #: against 540 ms at runs of up to 256 steps) and the demo's coupling alike.
 _CLOSED_RUN = 16
+#: Most multiply-adds of one matrix product :func:`_in_blocks` makes at once: OpenBLAS
+#: shares a larger one among threads, and on a busy machine waiting for them to be
+#: scheduled took up to 30 ms where the product takes 0.1 ms.
+_ONE_THREAD = 4 * 65536
 
 
 @dataclass(frozen=True)
@@ -206,36 +210,52 @@ def _march(z, tau, t, dt, near: EndLoads, far: EndLoads, bitwise=True) -> PairWa
     written out on its own.  Pairs not ``bitwise`` are marched apart (:func:`_groups`):
     those whose delays span at most :data:`_BLOCK_ROWS` steps in blocks
     (:func:`_in_blocks`), the rest in closed runs (:func:`_in_closed_runs`), the same
-    values to about 1e-13 of their scale, not to the last bit.
+    values to about 1e-13 of their scale, not to the last bit.  The groups' voltages
+    meet in one array laid out (end, pair, conductor, time), so each waveform the
+    result gives is contiguous.
     """
     nb, nt = z.shape[0], t.size
     ends = _end(near, nt, "near", nb), _end(far, nt, "far", nb)
     lag = tau / dt
     groups = _groups(lag, bitwise)
-    out = None if len(groups) == 1 and groups[0][1] == "steps" else np.empty((nt, 2, nb, 2))
+    if len(groups) == 1 and groups[0][1] == "steps":
+        return _march_steps(z, lag, t, dt, ends)
+    # (end, pair, conductor, time), the time padded to whole blocks where there are any
+    padded = -(-nt // _BLOCK) * _BLOCK if any(h == "blocks" for _, h in groups) else nt
+    out = np.empty((2, nb, 2, padded))
     # the blocks read the sources only up to one step after their last move
-    span = _moving_steps(ends[0][2], ends[1][2]) if out is not None else nt
+    span = _moving_steps(ends[0][2], ends[1][2])
     for rows, how in groups:
         s, v_dc = _setup(z[rows], lag[rows], dt,
                          *((x[..., :span] if how == "blocks" and x.ndim == 3 else x)[rows]
                            for e in ends for x in e), record=how != "blocks")
         if how == "blocks":
-            out[:, :, rows] = _in_blocks(s, lag[rows], v_dc, nt)
+            out.reshape(2, nb, 2, -1, _BLOCK)[:, rows] = _in_blocks(s, lag[rows], v_dc, nt)
             continue
         v_ends = np.empty((nt + 1,) + v_dc.shape)
         v_ends[0] = v_dc                               # the state before the edge
         run = _run_length(lag[rows])
-        if run > 1:
-            if how == "steps":
-                _in_runs(s, v_ends, run)
-            else:
-                _in_closed_runs(s, v_ends, min(run, _CLOSED_RUN))
+        if run > 1 and how == "closed":
+            _in_closed_runs(s, v_ends, min(run, _CLOSED_RUN))
+        elif run > 1:
+            _in_runs(s, v_ends, run)
         else:
             _one_by_one(s, v_ends)
-        if out is None:
-            out = v_ends[1:]
-        else:
-            out[:, :, rows] = v_ends[1:]
+        out[:, rows, :, :nt] = v_ends[1:].transpose(1, 2, 3, 0)
+    return PairWaves(t, out[0, :, :, :nt], out[1, :, :, :nt])
+
+
+def _march_steps(z, lag, t, dt, ends) -> PairWaves:
+    """:func:`_march` of pairs all ``bitwise``: in runs, or a step at a time."""
+    s, v_dc = _setup(z, lag, dt, *(x for e in ends for x in e))
+    v_ends = np.empty((t.size + 1,) + v_dc.shape)
+    v_ends[0] = v_dc                                   # the state before the edge
+    run = _run_length(lag)
+    if run > 1:
+        _in_runs(s, v_ends, run)
+    else:
+        _one_by_one(s, v_ends)
+    out = v_ends[1:]
     return PairWaves(t, np.moveaxis(out[:, 0], 0, -1), np.moveaxis(out[:, 1], 0, -1))
 
 
@@ -417,13 +437,14 @@ def _matvec(m, x):
 
 
 def _in_blocks(s: _Setup, lag, v_dc, nt: int) -> np.ndarray:
-    """``v_ends[1:]`` of G pairs, shape (nt, 2, G, 2), marched :data:`_BLOCK` steps at a
-    time by the march's state-space form (:func:`_one_step`): a block's voltages and
-    the state it leaves (its last voltage and R rows of waves) are its start's state
-    times one matrix per pair (:func:`_block_gain`), plus its inputs' share
-    (:func:`_input_share`).  One matrix product a block, whatever the delays; its size
-    grows with the rows a pair reads back, so only short delays come here.
-    ``s`` is a :func:`_setup` without its record.
+    """The voltages of G pairs, shape (end, G, conductor, blocks, :data:`_BLOCK`) (the
+    steps of the last block past ``nt`` too), marched a block at a time by the march's
+    state-space form (:func:`_one_step`): the state a block leaves (its last voltage
+    and R rows of waves) is its start's times one matrix per pair, plus its inputs'
+    share (:func:`_block_gain`, :func:`_input_share`), one small product a block,
+    whatever the delays; every block's voltages then come from the states at their
+    starts in a few products.  A state's size grows with the rows a pair reads back,
+    so only short delays come here.  ``s`` is a :func:`_setup` without its record.
     """
     a, b_in = _one_step(s, lag)
     g, size = a.shape[0], a.shape[1]
@@ -439,16 +460,26 @@ def _in_blocks(s: _Setup, lag, v_dc, nt: int) -> np.ndarray:
                            for x in ((s.s_n @ s.src[-1, ..., None])[..., 0], s.src[-1])],
                           axis=-1)
     moving, steady = _input_share(taps, u, last, keep)
-    out = np.empty((nblk, g, keep.size))
-    state = np.concatenate([np.moveaxis(v_dc, 1, 0).reshape(g, 4),
-                            np.tile(np.moveaxis(s.rows[0], 1, 0).reshape(g, 4),
-                                    (size - 4) // 4)], axis=1)
-    for i in range(nblk):
-        np.matmul(gain, state[..., None], out=out[i, :, :, None])
-        out[i] += moving[i] if i < nvar else steady
-        state = out[i, :, 4 * _BLOCK - 4:]
-    v = out[:, :, :4 * _BLOCK].reshape(nblk, g, _BLOCK, 2, 2)
-    return np.moveaxis(v, 2, 1).reshape(nblk * _BLOCK, g, 2, 2)[:nt].swapaxes(1, 2)
+    # the state at each block's start: its last voltages and R rows of waves
+    at = np.concatenate([np.arange(1, 5) * _BLOCK - 1, np.arange(4 * _BLOCK, keep.size)])
+    states = np.empty((nblk, g, size))
+    states[0] = np.concatenate([np.moveaxis(v_dc, 1, 0).reshape(g, 4),
+                                np.tile(np.moveaxis(s.rows[0], 1, 0).reshape(g, 4),
+                                        (size - 4) // 4)], axis=1)
+    step, into, after = gain[:, at], moving[:, :, at], steady[:, at]
+    for i in range(nblk - 1):
+        np.matmul(step, states[i, :, :, None], out=states[i + 1, :, :, None])
+        states[i + 1] += into[i] if i < nvar else after
+    # every block's voltages from its start: (G, blocks, 4K), K steps of each (end,
+    # conductor), in products small enough to run on one thread
+    g_v = np.ascontiguousarray(gain[:, :4 * _BLOCK].transpose(0, 2, 1))
+    v = np.empty((g, nblk, 4 * _BLOCK))
+    chunk = max(1, _ONE_THREAD // (size * 4 * _BLOCK))
+    for i in range(0, nblk, chunk):
+        np.matmul(states[i:i + chunk].transpose(1, 0, 2), g_v, out=v[:, i:i + chunk])
+    v[:, :nvar] += moving[:, :, :4 * _BLOCK].transpose(1, 0, 2)
+    v[:, nvar:] += steady[:, None, :4 * _BLOCK]
+    return v.reshape(g, nblk, 2, 2, _BLOCK).transpose(2, 0, 3, 1, 4)
 
 
 def _block_gain(a, b_in):
@@ -456,8 +487,8 @@ def _block_gain(a, b_in):
     inputs.  Row ``j`` of ``rows`` (K + 1, G, 8, 4 + 4R) is ``a**j`` read at the
     newest voltage and waves, so step j of a block gives ``rows[j + 1] @ state``
     plus ``taps[j - i] @ u[i]`` (taps (G, K, 8, 8)) of its inputs.  Of those K x 8
-    values the block keeps (``keep``) its K voltages and the R newest rows of waves:
-    ``gain`` (G, 4K + 4R, 4 + 4R)."""
+    values the block keeps (``keep``) its K voltages, each (end, conductor)'s in step
+    order, and the R newest rows of waves: ``gain`` (G, 4K + 4R, 4 + 4R)."""
     g, size = a.shape[0], a.shape[1]
     reach = (size - 4) // 4
     rows = np.empty((_BLOCK + 1, g, 8, size))
@@ -467,7 +498,7 @@ def _block_gain(a, b_in):
     for j in range(_BLOCK):
         np.matmul(rows[j], a, out=rows[j + 1])
     taps = np.moveaxis(rows[:_BLOCK] @ b_in, 0, 1)                  # (G, K, 8, 8)
-    keep = np.concatenate([(8 * np.arange(_BLOCK)[:, None] + np.arange(4)).ravel(),
+    keep = np.concatenate([(np.arange(4)[:, None] + 8 * np.arange(_BLOCK)).ravel(),
                            (8 * np.arange(_BLOCK - reach, _BLOCK)[:, None]
                             + np.arange(4, 8)).ravel()])
     gain = np.moveaxis(rows[1:], 0, 1).reshape(g, 8 * _BLOCK, size)[:, keep]
