@@ -223,21 +223,23 @@ def _march(z, tau, t, dt, near: EndLoads, far: EndLoads, bitwise=True) -> PairWa
     # (end, pair, conductor, time), the time padded to whole blocks where there are any
     padded = -(-nt // _BLOCK) * _BLOCK if any(h == "blocks" for _, h in groups) else nt
     out = np.empty((2, nb, 2, padded))
-    # the blocks read the sources only up to one step after their last move
+    # blocks and closed runs read the sources only up to one step after their last move
     span = _moving_steps(ends[0][2], ends[1][2])
     for rows, how in groups:
         s, v_dc = _setup(z[rows], lag[rows], dt,
-                         *((x[..., :span] if how == "blocks" and x.ndim == 3 else x)[rows]
-                           for e in ends for x in e), record=how != "blocks")
+                         *((x[..., :span] if how != "steps" and x.ndim == 3 else x)[rows]
+                           for e in ends for x in e), record=how != "blocks", steps=nt)
         if how == "blocks":
             out.reshape(2, nb, 2, -1, _BLOCK)[:, rows] = _in_blocks(s, lag[rows], v_dc, nt)
             continue
-        v_ends = np.empty((nt + 1,) + v_dc.shape)
-        v_ends[0] = v_dc                               # the state before the edge
         run = _run_length(lag[rows])
         if run > 1 and how == "closed":
-            _in_closed_runs(s, v_ends, min(run, _CLOSED_RUN))
-        elif run > 1:
+            v = _in_closed_runs(s, v_dc, nt, min(run, _CLOSED_RUN))
+            out[:, rows, :, :nt] = v.reshape(2, len(rows), 2, -1)[..., :nt]
+            continue
+        v_ends = np.empty((nt + 1,) + v_dc.shape)
+        v_ends[0] = v_dc                               # the state before the edge
+        if run > 1:
             _in_runs(s, v_ends, run)
         else:
             _one_by_one(s, v_ends)
@@ -280,13 +282,16 @@ def _groups(lag, bitwise) -> list:
     return out
 
 
-def _setup(z, lag, dt, g0, c0, vs0, g1, c1, vs1, record: bool = True):
+def _setup(z, lag, dt, g0, c0, vs0, g1, c1, vs1, record: bool = True,
+           steps: int | None = None):
     """The :class:`_Setup` of B pairs (their terminations from :func:`_end`) and the
-    DC state of their ends, shape (2, B, 2).  Without ``record`` (the blocks, given
-    the sources up to one step after their last move: :func:`_moving_steps`), the
-    record holds the DC waves only and ``s_n`` is the matrix ``S[n] = s_n @ src[n]``.
+    DC state of their ends, shape (2, B, 2).  The record is ``steps`` long (else as
+    long as the sources: the closed runs are given them up to one step after their
+    last move, :func:`_moving_steps`).  Without ``record`` (the blocks, given the
+    sources so cut too), the record holds the DC waves only and ``s_n`` is the matrix
+    ``S[n] = s_n @ src[n]``.
     """
-    nb, nt = z.shape[0], vs0.shape[-1]
+    nb, nt = z.shape[0], vs0.shape[-1] if steps is None else steps
     g, k = np.stack([g0, g1]), np.stack([c0, c1]) / dt                   # (2, B, 2)
     zc = np.einsum("ij,bj,jk->bik", _T, z, _T)                            # (B, 2, 2)
     solve = np.linalg.inv(np.eye(2) + zc[None] * (g + k)[:, :, None, :])  # (2, B, 2, 2)
@@ -351,36 +356,41 @@ def _in_runs(s: _Setup, v_ends: np.ndarray, run: int) -> None:
         s.rows[s.pad + n0:s.pad + n1] = v @ _T + s.z * (i @ _T)
 
 
-def _in_closed_runs(s: _Setup, v_ends: np.ndarray, run: int) -> None:
-    """:func:`_in_runs` with each run's voltages in one product (to rounding, not to the
-    bit): ``[v[0], the K + 1 rows of waves the run reads]`` times one matrix per end
-    and pair (:func:`_run_matrix`), plus the sources' share, formed for every run
-    before the march."""
-    nt = v_ends.shape[0] - 1
+def _in_closed_runs(s: _Setup, v_dc, nt: int, run: int) -> np.ndarray:
+    """:func:`_in_runs` with each run's voltages and the waves it sends in one product
+    (to rounding, not to the bit): ``[v[0], the K + 1 rows of waves the run reads]``
+    times one matrix per end and pair (:func:`_run_matrix`), plus the sources' share,
+    formed for every run before the march.  Returns the voltages, shape (end, B,
+    conductor, runs, K) (the steps of the last run past ``nt`` too)."""
     nb, width = s.base.shape[1], s.base.size
     mat, share = _run_matrix(s, run, nt)
     flat = s.rows.reshape(-1)
     # where each end reads row q of a run (q = 0..K) of each mode: (2, B, K + 1, 2)
     reads = (s.base[:, :, None, :] + (np.arange(run + 1) * width)[:, None]).reshape(
         2, nb, -1)
+    volts = np.empty((2, nb, 2, -(-nt // run), run))
     buf = np.empty((2, nb, 2 * run + 4, 1))
+    buf[:, :, :2, 0] = v_dc
+    x = np.empty((2, nb, 4 * run, 1))
+    out = x[..., 0]
     for r, n0 in enumerate(range(0, nt, run)):
-        n1 = min(n0 + run, nt)
-        kn = n1 - n0
-        buf[:, :, :2, 0] = v_ends[n0]
+        kn = min(run, nt - n0)
         buf[:, :, 2:, 0] = flat[reads + n0 * width]
-        x = mat[:, :, :2 * kn] @ buf
-        x[..., 0] += share[:, :, r, :2 * kn]
-        v_ends[n0 + 1:n1 + 1] = np.moveaxis(x.reshape(2, nb, kn, 2), 2, 0)
-        v, vp = v_ends[n0 + 1:n1 + 1], v_ends[n0:n1]
-        i = s.src[n0:n1] - s.gk * v + s.k * vp
-        s.rows[s.pad + n0:s.pad + n1] = v @ _T + s.z * (i @ _T)
+        np.matmul(mat, buf, out=x)
+        out += share[min(r, len(share) - 1)]
+        volts[:, :, :, r] = out[:, :, :2 * run].reshape(2, nb, 2, run)
+        buf[:, :, :2, 0] = out[:, :, run - 1:2 * run:run]     # the run's last voltages
+        s.rows[s.pad + n0:s.pad + n0 + kn] = out[:, :, 2 * run:2 * (run + kn)].reshape(
+            2, nb, kn, 2).transpose(2, 0, 1, 3)
+    return volts
 
 
 def _run_matrix(s: _Setup, run: int, nt: int):
-    """The matrix of :func:`_in_closed_runs` (2, B, 2K, 2K + 4) and each run's share of
-    the sources (2, B, runs, 2K): ``v[j] = P**j v[0] + sum over i < j of P**(j - 1 -
-    i) (M a[i] + S[i])`` with ``a[i] = keep row[i] + frac row[i + 1]``."""
+    """The matrix of :func:`_in_closed_runs` (2, B, 4K, 2K + 4) and the runs' shares of
+    the sources (R, 2, B, 4K: the runs the sources move in, then one for every later
+    run): ``v[j] = P**j v[0] + sum over i < j of P**(j - 1 -
+    i) (M a[i] + S[i])`` with ``a[i] = keep row[i] + frac row[i + 1]``, its rows the K
+    steps of each conductor, then the waves sent at each step (:func:`_wave_rows`)."""
     powers = np.empty((run + 1,) + s.p.shape)
     powers[0] = np.eye(2)
     for j in range(run):
@@ -397,8 +407,9 @@ def _run_matrix(s: _Setup, run: int, nt: int):
     mat[:, :, :, :, 0] = np.moveaxis(powers[1:], 0, 2)     # v[0]
     mat[:, :, :, :, 1:-1] += on_a * s.keep[:, :, None, None, None, :]
     mat[:, :, :, :, 2:] += on_a * s.frac[:, :, None, None, None, :]
-    nrun = -(-nt // run)
-    s_n = np.concatenate([s.s_n, np.repeat(s.s_n[-1:], nrun * run - nt, axis=0)])
+    # the runs whose sources move, and one for every later run (they repeat its last)
+    nrun = min(-(-nt // run), -(-(len(s.s_n) - 1) // run) + 1)
+    s_n = s.s_n[np.minimum(np.arange(nrun * run), len(s.s_n) - 1)]
     s_n = s_n.reshape(nrun, run, 2, nb, 2)
     lower = on_u.reshape(2, nb, 2 * run, 2 * run)
     share = np.empty((2, nb, nrun, 2 * run))
@@ -410,7 +421,33 @@ def _run_matrix(s: _Setup, run: int, nt: int):
     if not const.all():
         var = s_n[~const].transpose(2, 3, 1, 4, 0).reshape(2, nb, 2 * run, -1)
         share[:, :, ~const] = (lower @ var).swapaxes(2, 3)
-    return mat.reshape(2, nb, 2 * run, 2 * run + 4), share
+    return _wave_rows(s, mat.reshape(2, nb, run, 2, 2 * run + 4),
+                      share.reshape(2, nb, nrun, run, 2))
+
+
+def _wave_rows(s: _Setup, mat, share):
+    """:func:`_run_matrix`'s voltage rows (``mat`` (2, B, K, 2, 2K + 4), ``share`` (2,
+    B, runs, K, 2), step then conductor) with the rows of the waves each step sends
+    below them: the wave of step j is ``A v[j + 1] + Bm v[j] + C src[j]`` (the record's
+    ``v T + z (src - gk v + k vp) T``), ``v[0]`` the start of the run's ``buf``."""
+    nb, run, nrun = mat.shape[1], mat.shape[2], share.shape[2]
+    c = s.z[None, :, :, None] * _T.T                       # (1, B, mode, conductor)
+    a = _T.T - c * s.gk[:, :, None, :]
+    b = c * s.k[:, :, None, :]
+    first = np.broadcast_to(np.eye(2, mat.shape[-1]), (2, nb, 1, 2, mat.shape[-1]))
+    before = np.concatenate([first, mat[:, :, :-1]], axis=2)
+    waves = a[:, :, None] @ mat + b[:, :, None] @ before
+    src = s.src[np.minimum(np.arange(nrun * run), len(s.src) - 1)]
+    src = src.reshape(nrun, run, 2, nb, 2).transpose(2, 3, 0, 1, 4)
+    ahead = np.concatenate([np.zeros_like(share[:, :, :, :1]), share[:, :, :, :-1]], axis=3)
+    sent = sum(x.reshape(2, nb, -1, 2) @ np.swapaxes(y, 2, 3)    # (2, B, runs K, 2)
+               for x, y in ((share, a), (ahead, b), (src, np.broadcast_to(c, a.shape))))
+    full = np.concatenate([mat.transpose(0, 1, 3, 2, 4).reshape(2, nb, 2 * run, -1),
+                           waves.reshape(2, nb, 2 * run, -1)], axis=2)
+    shares = np.concatenate([share.transpose(2, 0, 1, 4, 3).reshape(nrun, 2, nb, 2 * run),
+                             sent.reshape(2, nb, nrun, 2 * run).transpose(2, 0, 1, 3)],
+                            axis=3)
+    return full, shares
 
 
 def _one_by_one(s: _Setup, v_ends: np.ndarray) -> None:
