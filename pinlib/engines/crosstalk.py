@@ -118,14 +118,23 @@ def _loads(vic: Victim, agg: Aggressor, t, ramp, held: str):
 
 
 def _stacked(vic: Victim, agg: Aggressor, t, ramp, nb: int):
-    """The loads of ``nb`` pairs held low followed by the same ``nb`` held high."""
+    """The loads of ``nb`` pairs held low followed by the same ``nb`` held high.  The
+    sources are repeated only where the held states' differ in time: one for all where
+    they are the same, a constant per pair where neither moves (the same values, without
+    two arrays of pairs x samples)."""
     ends = []
     for k in range(2):  # near, far
         per = [_loads(vic, agg, t, ramp, held)[k] for held in ("low", "high")]
         r = np.repeat(np.array([p.r for p in per], float), nb, axis=0)
         c = np.repeat(np.array([p.c for p in per], float), nb, axis=0)
-        v = np.repeat(np.stack([np.broadcast_to(np.asarray(p.v, float).reshape(2, -1),
-                                                (2, t.size)) for p in per]), nb, axis=0)
+        vs = [np.asarray(p.v, float).reshape(2, -1) for p in per]
+        if all(x.shape[1] == 1 for x in vs):              # constant: (pairs, 2)
+            v = np.repeat(np.stack([x[:, 0] for x in vs]), nb, axis=0)
+        elif vs[0].shape == vs[1].shape and np.array_equal(vs[0], vs[1]):
+            v = np.broadcast_to(vs[0], (2, t.size))       # one for every pair
+        else:
+            v = np.repeat(np.stack([np.broadcast_to(x, (2, t.size)) for x in vs]), nb,
+                          axis=0)
         ends.append(EndLoads(r, c, v))
     return ends
 
