@@ -140,7 +140,7 @@ def _in_blocks(s, lag, v_dc, nt: int) -> np.ndarray:
     """
     a, b_in = _one_step(s, lag)
     g, size = a.shape[0], a.shape[1]
-    gain, taps, keep = _block_gain(a, b_in)
+    step, g_v, taps, keep = _block_gain(a, b_in)
     nblk = -(-nt // _BLOCK)
     moved = np.flatnonzero(np.any(s.src[1:] != s.src[:-1], axis=(1, 2, 3)))
     nvar = 0 if moved.size == 0 else -(-(int(moved[-1]) + 2) // _BLOCK)
@@ -158,13 +158,12 @@ def _in_blocks(s, lag, v_dc, nt: int) -> np.ndarray:
     states[0] = np.concatenate([np.moveaxis(v_dc, 1, 0).reshape(g, 4),
                                 np.tile(np.moveaxis(s.rows[0], 1, 0).reshape(g, 4),
                                         (size - 4) // 4)], axis=1)
-    step, into, after = gain[:, at], moving[:, :, at], steady[:, at]
+    into, after = moving[:, :, at], steady[:, at]
     for i in range(nblk - 1):
         np.matmul(step, states[i, :, :, None], out=states[i + 1, :, :, None])
         states[i + 1] += into[i] if i < nvar else after
     # every block's voltages from its start: (G, blocks, 4K), K steps of each (end,
     # conductor), in products small enough to run on one thread
-    g_v = np.ascontiguousarray(gain[:, :4 * _BLOCK].transpose(0, 2, 1))
     v = np.empty((g, nblk, 4 * _BLOCK))
     chunk = max(1, _ONE_THREAD // (size * 4 * _BLOCK))
     for i in range(0, nblk, chunk):
@@ -176,25 +175,40 @@ def _in_blocks(s, lag, v_dc, nt: int) -> np.ndarray:
 
 def _block_gain(a, b_in):
     """What a block of K = :data:`_BLOCK` steps makes of its start's state and of its
-    inputs.  Row ``j`` of ``rows`` (K + 1, G, 8, 4 + 4R) is ``a**j`` read at the
-    newest voltage and waves, so step j of a block gives ``rows[j + 1] @ state``
-    plus ``taps[j - i] @ u[i]`` (taps (G, K, 8, 8)) of its inputs.  Of those K x 8
-    values the block keeps (``keep``) its K voltages, each (end, conductor)'s in step
-    order, and the R newest rows of waves: ``gain`` (G, 4K + 4R, 4 + 4R)."""
+    inputs.  Row ``j`` (j = 0..K) of the march's rows is ``a**j`` read at the newest
+    voltages and waves (8 x (4 + 4R)), so step j of a block gives ``row[j + 1] @
+    state`` plus ``taps[j - i] @ u[i]`` (taps (G, K, 8, 8)) of its inputs.  Of those K
+    x 8 values a block keeps (``keep``) its K voltages, each (end, conductor)'s in step
+    order, and the R newest rows of waves.  Returns the state's ``step`` (G, 4 + 4R, 4
+    + 4R: the last voltages and those rows of waves), the voltages' gain ``g_v`` (G, 4
+    + 4R, 4K), transposed for :func:`_in_blocks`' product, ``taps`` and ``keep``."""
     g, size = a.shape[0], a.shape[1]
     reach = (size - 4) // 4
-    rows = np.empty((_BLOCK + 1, g, 8, size))
-    rows[0] = 0.0
+    # a's rows between the newest voltages and the newest waves only move the older
+    # waves down a row: the product with them is a shift
+    ends = np.r_[0:4, size - 4:size]
+    dense = np.ascontiguousarray(a[:, ends])                         # (G, 8, 4 + 4R)
+    b_ends = np.ascontiguousarray(b_in[:, ends])                     # (G, 8, 8)
+    g_v = np.empty((g, size, 4, _BLOCK))
+    step = np.empty((g, size, size))
+    taps = np.empty((_BLOCK, g, 8, 8))
+    rows = np.zeros((2, g, 8, size))                    # row j and row j + 1, in turn
     rows[0, :, :4, :4] = np.eye(4)
     rows[0, :, 4:, size - 4:] = np.eye(4)
     for j in range(_BLOCK):
-        np.matmul(rows[j], a, out=rows[j + 1])
-    taps = np.moveaxis(rows[:_BLOCK] @ b_in, 0, 1)                  # (G, K, 8, 8)
+        now, new = rows[j % 2], rows[1 - j % 2]
+        read = now[..., ends]
+        np.matmul(read, b_ends, out=taps[j])
+        np.matmul(read, dense, out=new)
+        new[..., 8:] += now[..., 4:size - 4]
+        g_v[..., j] = new[:, :4].transpose(0, 2, 1)
+        if j >= _BLOCK - reach:
+            step[:, 4 * (j - _BLOCK + reach + 1):4 * (j - _BLOCK + reach + 2)] = new[:, 4:]
+    step[:, :4] = new[:, :4]
     keep = np.concatenate([(np.arange(4)[:, None] + 8 * np.arange(_BLOCK)).ravel(),
                            (8 * np.arange(_BLOCK - reach, _BLOCK)[:, None]
                             + np.arange(4, 8)).ravel()])
-    gain = np.moveaxis(rows[1:], 0, 1).reshape(g, 8 * _BLOCK, size)[:, keep]
-    return gain, taps, keep
+    return step, g_v.reshape(g, size, 4 * _BLOCK), np.moveaxis(taps, 0, 1), keep
 
 
 def _input_share(taps, u, last, keep):
