@@ -332,18 +332,25 @@ def _in_runs(s: _Setup, v_ends: np.ndarray, run: int) -> None:
     nt = v_ends.shape[0] - 1
     width = s.base.size
     flat = s.rows.reshape(-1)
-    steps = np.arange(nt) * width
+    # where each step reads its two rows, and the voltages as columns for the products
+    first = s.base + (np.arange(nt) * width)[:, None, None, None]        # (nt, 2, B, 2)
+    second = first + width
+    col, s_n = v_ends[..., None], s.s_n[..., None]
+    p_v = np.empty(col.shape[1:])
     for n0 in range(0, nt, run):
         n1 = min(n0 + run, nt)
-        idx = s.base + steps[n0:n1, None, None, None]
-        a = s.keep * flat[idx] + s.frac * flat[idx + width]             # (K, 2, B, 2)
-        u = np.matmul(s.m, a[..., None])[..., 0] + s.s_n[n0:n1]
+        a = s.keep * flat[first[n0:n1]] + s.frac * flat[second[n0:n1]]  # (K, 2, B, 2)
+        u = np.matmul(s.m, a[..., None])
+        u += s_n[n0:n1]
         for n in range(n0, n1):
-            np.add(u[n - n0], np.matmul(s.p, v_ends[n][..., None])[..., 0],
-                   out=v_ends[n + 1])
-        v, vp = v_ends[n0 + 1:n1 + 1], v_ends[n0:n1]
-        i = s.src[n0:n1] - s.gk * v + s.k * vp
-        s.rows[s.pad + n0:s.pad + n1] = v @ _T + s.z * (i @ _T)
+            np.matmul(s.p, col[n], out=p_v)
+            np.add(u[n - n0], p_v, out=col[n + 1])
+        v = v_ends[n0 + 1:n1 + 1]
+        i = s.src[n0:n1] - s.gk * v
+        i += s.k * v_ends[n0:n1]
+        sent = v @ _T
+        sent += s.z * (i @ _T)
+        s.rows[s.pad + n0:s.pad + n1] = sent
 
 
 def _one_by_one(s: _Setup, v_ends: np.ndarray) -> None:
