@@ -191,14 +191,14 @@ def _block_gain(a, b_in):
     b_ends = np.ascontiguousarray(b_in[:, ends])                     # (G, 8, 8)
     g_v = np.empty((g, size, 4, _BLOCK))
     step = np.empty((g, size, size))
-    taps = np.empty((_BLOCK, g, 8, 8))
+    taps = np.empty((g, _BLOCK, 8, 8))
     rows = np.zeros((2, g, 8, size))                    # row j and row j + 1, in turn
     rows[0, :, :4, :4] = np.eye(4)
     rows[0, :, 4:, size - 4:] = np.eye(4)
     for j in range(_BLOCK):
         now, new = rows[j % 2], rows[1 - j % 2]
         read = now[..., ends]
-        np.matmul(read, b_ends, out=taps[j])
+        np.matmul(read, b_ends, out=taps[:, j])
         np.matmul(read, dense, out=new)
         new[..., 8:] += now[..., 4:size - 4]
         g_v[..., j] = new[:, :4].transpose(0, 2, 1)
@@ -208,7 +208,7 @@ def _block_gain(a, b_in):
     keep = np.concatenate([(np.arange(4)[:, None] + 8 * np.arange(_BLOCK)).ravel(),
                            (8 * np.arange(_BLOCK - reach, _BLOCK)[:, None]
                             + np.arange(4, 8)).ravel()])
-    return step, g_v.reshape(g, size, 4 * _BLOCK), np.moveaxis(taps, 0, 1), keep
+    return step, g_v.reshape(g, size, 4 * _BLOCK), taps, keep
 
 
 def _input_share(taps, u, last, keep):
@@ -217,7 +217,8 @@ def _input_share(taps, u, last, keep):
     taps[j - i] @ u[i]``, (nvar, G, 4K + 4R); of every later block, whose inputs stay
     at ``last`` (G, 8), the running sums of the taps times it, (G, 4K + 4R)."""
     g, nvar, kb, _ = u.shape
-    steady = (np.cumsum(taps, axis=1) @ last[:, None, :, None]).reshape(g, -1)[:, keep]
+    steady = np.cumsum((taps.reshape(g, kb * 8, 8) @ last[:, :, None]).reshape(g, kb, 8),
+                       axis=1).reshape(g, -1)[:, keep]
     # the inputs before each step, latest last: row j holds u[j - K + 1 .. j] (zero
     # before the block), a strided view of the block after K - 1 rows of zeros
     pre = np.concatenate([np.zeros((g, nvar, kb - 1, 8)), u], axis=2)
