@@ -57,6 +57,10 @@ _MAX_RUN = 256
 #: where the last bit need not be kept (a block's work grows with them; runs of
 #: :func:`_in_runs` are then at least this long).
 _BLOCK_ROWS = 16
+#: Rows back that part the pairs marched in blocks into two groups: the demo's length
+#: grid (16 pairs in blocks, 1-16 rows back) took 11 ms split here, 12 in one group
+#: and 13-15 in a group for each power of two.
+_FEW_ROWS = 4
 
 
 @dataclass(frozen=True)
@@ -255,15 +259,16 @@ def _groups(lag, bitwise) -> list:
     """The pairs marched together and how: ``(rows, "steps" | "blocks" | "closed")``.
     Those ``bitwise`` (a bool or one per pair) in one march by the steps' own
     arithmetic; of the others, those reading at most :data:`_BLOCK_ROWS` rows back in
-    blocks, a group for each power of two of rows (a block's work grows with its rows),
-    and the rest in closed runs."""
+    blocks, in two groups, up to :data:`_FEW_ROWS` rows and more (a block's work grows
+    with its rows, a group's set-up is some hundreds of numpy calls), and the rest in
+    closed runs."""
     exact = np.broadcast_to(np.asarray(bitwise, bool), lag.shape[:1])
     if exact.all():
         return [(slice(None), "steps")]
     out = [(np.flatnonzero(exact), "steps")] if exact.any() else []
     reach = np.ceil(lag.max(axis=1)).astype(int)
     short = (reach <= _BLOCK_ROWS) & ~exact
-    bins = np.ceil(np.log2(np.maximum(reach, 2))).astype(int)
+    bins = (reach > _FEW_ROWS).astype(int)
     # (np.unique would import numpy.ma, some milliseconds the command does not need)
     out += [(np.flatnonzero(short & (bins == b)), "blocks")
             for b in sorted(set(bins[short].tolist()))]
