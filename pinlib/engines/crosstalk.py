@@ -141,26 +141,26 @@ def _stacked(vic: Victim, agg: Aggressor, t, ramp, nb: int):
 
 def _excursions(t, rows, threshold, held: str) -> list[EndNoise]:
     """The worst excursion of each waveform of ``rows`` (B, nt) held ``held``, over the
-    rising edge's noise and the falling edge's (its sign turned), all rows at once."""
+    rising edge's noise and the falling edge's (its sign turned: ``start - dev``), all
+    rows at once; the falling edge's where it goes further."""
+    low = held == "low"
     dt = t[1] - t[0]
     start = rows[:, :1]
     dev = rows - start
+    level = np.empty_like(dev)
+    beyond = np.empty(dev.shape, bool)
     edges = []
-    for sign in (1.0, -1.0):  # the rising edge's noise, and the falling edge's
-        level = start + sign * dev
-        beyond = level > threshold if held == "low" else level < threshold
-        worst = level.max(axis=1) if held == "low" else level.min(axis=1)
-        edges.append((worst, np.count_nonzero(beyond, axis=1) * dt, beyond[:, -1]))
-    out = []
-    for b in range(rows.shape[0]):
-        best = None
-        for worst, time_beyond, still in edges:
-            cand = EndNoise(float(worst[b]), float(time_beyond[b]), bool(still[b]))
-            if best is None or (cand.level > best.level if held == "low"
-                                else cand.level < best.level):
-                best = cand
-        out.append(best)
-    return out
+    for turn in (np.add, np.subtract):  # the rising edge's noise, and the falling edge's
+        turn(start, dev, out=level)
+        (np.greater if low else np.less)(level, threshold, out=beyond)
+        edges.append((level.max(axis=1) if low else level.min(axis=1),
+                      np.count_nonzero(beyond, axis=1) * dt, beyond[:, -1].copy()))
+    (rise, rise_t, rise_open), (fall, fall_t, fall_open) = edges
+    turned = fall > rise if low else fall < rise
+    return [EndNoise(*x) for x in zip(np.where(turned, fall, rise).tolist(),
+                                      np.where(turned, fall_t, rise_t).tolist(),
+                                      np.where(turned, fall_open, rise_open).tolist(),
+                                      strict=True)]
 
 
 def _check_inputs(vic: Victim, agg: Aggressor) -> None:
