@@ -118,40 +118,49 @@ def _loads(vic: Victim, agg: Aggressor, t, ramp, held: str):
 
 
 def _stacked(vic: Victim, agg: Aggressor, t, ramp, nb: int):
-    """The loads of ``nb`` pairs held low followed by the same ``nb`` held high."""
+    """The loads of ``nb`` pairs held low followed by the same ``nb`` held high.  The
+    sources are repeated only where the held states' differ in time: one for all where
+    they are the same, a constant per pair where neither moves (the same values, without
+    two arrays of pairs x samples)."""
     ends = []
     for k in range(2):  # near, far
         per = [_loads(vic, agg, t, ramp, held)[k] for held in ("low", "high")]
         r = np.repeat(np.array([p.r for p in per], float), nb, axis=0)
         c = np.repeat(np.array([p.c for p in per], float), nb, axis=0)
-        v = np.repeat(np.stack([np.broadcast_to(np.asarray(p.v, float).reshape(2, -1),
-                                                (2, t.size)) for p in per]), nb, axis=0)
+        vs = [np.asarray(p.v, float).reshape(2, -1) for p in per]
+        if all(x.shape[1] == 1 for x in vs):              # constant: (pairs, 2)
+            v = np.repeat(np.stack([x[:, 0] for x in vs]), nb, axis=0)
+        elif vs[0].shape == vs[1].shape and np.array_equal(vs[0], vs[1]):
+            v = np.broadcast_to(vs[0], (2, t.size))       # one for every pair
+        else:
+            v = np.repeat(np.stack([np.broadcast_to(x, (2, t.size)) for x in vs]), nb,
+                          axis=0)
         ends.append(EndLoads(r, c, v))
     return ends
 
 
 def _excursions(t, rows, threshold, held: str) -> list[EndNoise]:
     """The worst excursion of each waveform of ``rows`` (B, nt) held ``held``, over the
-    rising edge's noise and the falling edge's (its sign turned), all rows at once."""
+    rising edge's noise and the falling edge's (its sign turned: ``start - dev``), all
+    rows at once; the falling edge's where it goes further."""
+    low = held == "low"
     dt = t[1] - t[0]
     start = rows[:, :1]
     dev = rows - start
+    level = np.empty_like(dev)
+    beyond = np.empty(dev.shape, bool)
     edges = []
-    for sign in (1.0, -1.0):  # the rising edge's noise, and the falling edge's
-        level = start + sign * dev
-        beyond = level > threshold if held == "low" else level < threshold
-        worst = level.max(axis=1) if held == "low" else level.min(axis=1)
-        edges.append((worst, np.count_nonzero(beyond, axis=1) * dt, beyond[:, -1]))
-    out = []
-    for b in range(rows.shape[0]):
-        best = None
-        for worst, time_beyond, still in edges:
-            cand = EndNoise(float(worst[b]), float(time_beyond[b]), bool(still[b]))
-            if best is None or (cand.level > best.level if held == "low"
-                                else cand.level < best.level):
-                best = cand
-        out.append(best)
-    return out
+    for turn in (np.add, np.subtract):  # the rising edge's noise, and the falling edge's
+        turn(start, dev, out=level)
+        (np.greater if low else np.less)(level, threshold, out=beyond)
+        edges.append((level.max(axis=1) if low else level.min(axis=1),
+                      np.count_nonzero(beyond, axis=1) * dt, beyond[:, -1].copy()))
+    (rise, rise_t, rise_open), (fall, fall_t, fall_open) = edges
+    turned = fall > rise if low else fall < rise
+    return [EndNoise(*x) for x in zip(np.where(turned, fall, rise).tolist(),
+                                      np.where(turned, fall_t, rise_t).tolist(),
+                                      np.where(turned, fall_open, rise_open).tolist(),
+                                      strict=True)]
 
 
 def _check_inputs(vic: Victim, agg: Aggressor) -> None:

@@ -28,7 +28,8 @@ linear and time-invariant, so a pair whose delays span at most :data:`_BLOCK_ROW
 steps goes :data:`_BLOCK` steps at a time, its state (last voltages and the waves sent
 back to the longer delay) times one matrix per pair plus its sources' share; longer
 delays go in runs whose voltages are one product of their start and the waves they
-read.  Both equal the step-by-step march to about 1e-13 of the waveform's scale.
+read (:mod:`pinlib.physics.coupledblocks`).  Both equal the step-by-step march to
+about 1e-13 of the waveform's scale.
 
 The start is the DC state of the terminations (the line carries their DC current).
 """
@@ -40,29 +41,26 @@ from dataclasses import dataclass
 from typing import NamedTuple
 
 import numpy as np
-from numpy.lib.stride_tricks import as_strided
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.physics.coupled import CoupledLine
+from pinlib.physics.coupledblocks import _BLOCK, _CLOSED_RUN, _T, _in_blocks, _in_closed_runs
 from pinlib.physics.guards import positive
 from pinlib.physics.lines.model import C0
 
 __all__ = ["EndLoads", "PairWaves", "coupled_waves", "coupled_waves_batch"]
 
-_T = np.array([[1.0, 1.0], [1.0, -1.0]]) / np.sqrt(2.0)
 #: Longest run of steps :func:`_march` gathers at once (its arrays are run x 4B values).
 _MAX_RUN = 256
 #: Most rows back (steps of the longer delay) a pair may read to be marched in blocks
 #: where the last bit need not be kept (a block's work grows with them; runs of
 #: :func:`_in_runs` are then at least this long).
 _BLOCK_ROWS = 16
-#: Steps of one block of :func:`_in_blocks` (at least :data:`_BLOCK_ROWS`).
-_BLOCK = 32
-#: Longest run of :func:`_in_closed_runs`: its matrix is 2K x (2K + 4) a pair and end,
-#: so a step costs O(K); 16-32 were fastest on the crosstalk bench (25 cm pair: 210 ms
-#: against 540 ms at runs of up to 256 steps) and the demo's coupling alike.
-_CLOSED_RUN = 16
+#: Rows back that part the pairs marched in blocks into two groups: the demo's length
+#: grid (16 pairs in blocks, 1-16 rows back) took 11 ms split here, 12 in one group
+#: and 13-15 in a group for each power of two.
+_FEW_ROWS = 4
 
 
 @dataclass(frozen=True)
@@ -206,36 +204,54 @@ def _march(z, tau, t, dt, near: EndLoads, far: EndLoads, bitwise=True) -> PairWa
     written out on its own.  Pairs not ``bitwise`` are marched apart (:func:`_groups`):
     those whose delays span at most :data:`_BLOCK_ROWS` steps in blocks
     (:func:`_in_blocks`), the rest in closed runs (:func:`_in_closed_runs`), the same
-    values to about 1e-13 of their scale, not to the last bit.
+    values to about 1e-13 of their scale, not to the last bit.  The groups' voltages
+    meet in one array laid out (end, pair, conductor, time), so each waveform the
+    result gives is contiguous.
     """
     nb, nt = z.shape[0], t.size
     ends = _end(near, nt, "near", nb), _end(far, nt, "far", nb)
     lag = tau / dt
     groups = _groups(lag, bitwise)
-    out = None if len(groups) == 1 and groups[0][1] == "steps" else np.empty((nt, 2, nb, 2))
-    # the blocks read the sources only up to one step after their last move
-    span = _moving_steps(ends[0][2], ends[1][2]) if out is not None else nt
+    if len(groups) == 1 and groups[0][1] == "steps":
+        return _march_steps(z, lag, t, dt, ends)
+    # (end, pair, conductor, time), the time padded to whole blocks where there are any
+    padded = -(-nt // _BLOCK) * _BLOCK if any(h == "blocks" for _, h in groups) else nt
+    out = np.empty((2, nb, 2, padded))
+    # blocks and closed runs read the sources only up to one step after their last move
+    span = _moving_steps(ends[0][2], ends[1][2])
     for rows, how in groups:
         s, v_dc = _setup(z[rows], lag[rows], dt,
-                         *((x[..., :span] if how == "blocks" and x.ndim == 3 else x)[rows]
-                           for e in ends for x in e), record=how != "blocks")
+                         *((x[..., :span] if how != "steps" and x.ndim == 3 else x)[rows]
+                           for e in ends for x in e), record=how != "blocks", steps=nt)
         if how == "blocks":
-            out[:, :, rows] = _in_blocks(s, lag[rows], v_dc, nt)
+            out.reshape(2, nb, 2, -1, _BLOCK)[:, rows] = _in_blocks(s, lag[rows], v_dc, nt)
+            continue
+        run = _run_length(lag[rows])
+        if run > 1 and how == "closed":
+            v = _in_closed_runs(s, v_dc, nt, min(run, _CLOSED_RUN))
+            out[:, rows, :, :nt] = v.reshape(2, len(rows), 2, -1)[..., :nt]
             continue
         v_ends = np.empty((nt + 1,) + v_dc.shape)
         v_ends[0] = v_dc                               # the state before the edge
-        run = _run_length(lag[rows])
         if run > 1:
-            if how == "steps":
-                _in_runs(s, v_ends, run)
-            else:
-                _in_closed_runs(s, v_ends, min(run, _CLOSED_RUN))
+            _in_runs(s, v_ends, run)
         else:
             _one_by_one(s, v_ends)
-        if out is None:
-            out = v_ends[1:]
-        else:
-            out[:, :, rows] = v_ends[1:]
+        out[:, rows, :, :nt] = v_ends[1:].transpose(1, 2, 3, 0)
+    return PairWaves(t, out[0, :, :, :nt], out[1, :, :, :nt])
+
+
+def _march_steps(z, lag, t, dt, ends) -> PairWaves:
+    """:func:`_march` of pairs all ``bitwise``: in runs, or a step at a time."""
+    s, v_dc = _setup(z, lag, dt, *(x for e in ends for x in e))
+    v_ends = np.empty((t.size + 1,) + v_dc.shape)
+    v_ends[0] = v_dc                                   # the state before the edge
+    run = _run_length(lag)
+    if run > 1:
+        _in_runs(s, v_ends, run)
+    else:
+        _one_by_one(s, v_ends)
+    out = v_ends[1:]
     return PairWaves(t, np.moveaxis(out[:, 0], 0, -1), np.moveaxis(out[:, 1], 0, -1))
 
 
@@ -243,15 +259,16 @@ def _groups(lag, bitwise) -> list:
     """The pairs marched together and how: ``(rows, "steps" | "blocks" | "closed")``.
     Those ``bitwise`` (a bool or one per pair) in one march by the steps' own
     arithmetic; of the others, those reading at most :data:`_BLOCK_ROWS` rows back in
-    blocks, a group for each power of two of rows (a block's work grows with its rows),
-    and the rest in closed runs."""
+    blocks, in two groups, up to :data:`_FEW_ROWS` rows and more (a block's work grows
+    with its rows, a group's set-up is some hundreds of numpy calls), and the rest in
+    closed runs."""
     exact = np.broadcast_to(np.asarray(bitwise, bool), lag.shape[:1])
     if exact.all():
         return [(slice(None), "steps")]
     out = [(np.flatnonzero(exact), "steps")] if exact.any() else []
     reach = np.ceil(lag.max(axis=1)).astype(int)
     short = (reach <= _BLOCK_ROWS) & ~exact
-    bins = np.ceil(np.log2(np.maximum(reach, 2))).astype(int)
+    bins = (reach > _FEW_ROWS).astype(int)
     # (np.unique would import numpy.ma, some milliseconds the command does not need)
     out += [(np.flatnonzero(short & (bins == b)), "blocks")
             for b in sorted(set(bins[short].tolist()))]
@@ -260,13 +277,16 @@ def _groups(lag, bitwise) -> list:
     return out
 
 
-def _setup(z, lag, dt, g0, c0, vs0, g1, c1, vs1, record: bool = True):
+def _setup(z, lag, dt, g0, c0, vs0, g1, c1, vs1, record: bool = True,
+           steps: int | None = None):
     """The :class:`_Setup` of B pairs (their terminations from :func:`_end`) and the
-    DC state of their ends, shape (2, B, 2).  Without ``record`` (the blocks, given
-    the sources up to one step after their last move: :func:`_moving_steps`), the
-    record holds the DC waves only and ``s_n`` is the matrix ``S[n] = s_n @ src[n]``.
+    DC state of their ends, shape (2, B, 2).  The record is ``steps`` long (else as
+    long as the sources: the closed runs are given them up to one step after their
+    last move, :func:`_moving_steps`).  Without ``record`` (the blocks, given the
+    sources so cut too), the record holds the DC waves only and ``s_n`` is the matrix
+    ``S[n] = s_n @ src[n]``.
     """
-    nb, nt = z.shape[0], vs0.shape[-1]
+    nb, nt = z.shape[0], vs0.shape[-1] if steps is None else steps
     g, k = np.stack([g0, g1]), np.stack([c0, c1]) / dt                   # (2, B, 2)
     zc = np.einsum("ij,bj,jk->bik", _T, z, _T)                            # (B, 2, 2)
     solve = np.linalg.inv(np.eye(2) + zc[None] * (g + k)[:, :, None, :])  # (2, B, 2, 2)
@@ -317,80 +337,25 @@ def _in_runs(s: _Setup, v_ends: np.ndarray, run: int) -> None:
     nt = v_ends.shape[0] - 1
     width = s.base.size
     flat = s.rows.reshape(-1)
-    steps = np.arange(nt) * width
+    # where each step reads its two rows, and the voltages as columns for the products
+    first = s.base + (np.arange(nt) * width)[:, None, None, None]        # (nt, 2, B, 2)
+    second = first + width
+    col, s_n = v_ends[..., None], s.s_n[..., None]
+    p_v = np.empty(col.shape[1:])
     for n0 in range(0, nt, run):
         n1 = min(n0 + run, nt)
-        idx = s.base + steps[n0:n1, None, None, None]
-        a = s.keep * flat[idx] + s.frac * flat[idx + width]             # (K, 2, B, 2)
-        u = np.matmul(s.m, a[..., None])[..., 0] + s.s_n[n0:n1]
+        a = s.keep * flat[first[n0:n1]] + s.frac * flat[second[n0:n1]]  # (K, 2, B, 2)
+        u = np.matmul(s.m, a[..., None])
+        u += s_n[n0:n1]
         for n in range(n0, n1):
-            np.add(u[n - n0], np.matmul(s.p, v_ends[n][..., None])[..., 0],
-                   out=v_ends[n + 1])
-        v, vp = v_ends[n0 + 1:n1 + 1], v_ends[n0:n1]
-        i = s.src[n0:n1] - s.gk * v + s.k * vp
-        s.rows[s.pad + n0:s.pad + n1] = v @ _T + s.z * (i @ _T)
-
-
-def _in_closed_runs(s: _Setup, v_ends: np.ndarray, run: int) -> None:
-    """:func:`_in_runs` with each run's voltages in one product (to rounding, not to the
-    bit): ``[v[0], the K + 1 rows of waves the run reads]`` times one matrix per end
-    and pair (:func:`_run_matrix`), plus the sources' share, formed for every run
-    before the march."""
-    nt = v_ends.shape[0] - 1
-    nb, width = s.base.shape[1], s.base.size
-    mat, share = _run_matrix(s, run, nt)
-    flat = s.rows.reshape(-1)
-    # where each end reads row q of a run (q = 0..K) of each mode: (2, B, K + 1, 2)
-    reads = (s.base[:, :, None, :] + (np.arange(run + 1) * width)[:, None]).reshape(
-        2, nb, -1)
-    buf = np.empty((2, nb, 2 * run + 4, 1))
-    for r, n0 in enumerate(range(0, nt, run)):
-        n1 = min(n0 + run, nt)
-        kn = n1 - n0
-        buf[:, :, :2, 0] = v_ends[n0]
-        buf[:, :, 2:, 0] = flat[reads + n0 * width]
-        x = mat[:, :, :2 * kn] @ buf
-        x[..., 0] += share[:, :, r, :2 * kn]
-        v_ends[n0 + 1:n1 + 1] = np.moveaxis(x.reshape(2, nb, kn, 2), 2, 0)
-        v, vp = v_ends[n0 + 1:n1 + 1], v_ends[n0:n1]
-        i = s.src[n0:n1] - s.gk * v + s.k * vp
-        s.rows[s.pad + n0:s.pad + n1] = v @ _T + s.z * (i @ _T)
-
-
-def _run_matrix(s: _Setup, run: int, nt: int):
-    """The matrix of :func:`_in_closed_runs` (2, B, 2K, 2K + 4) and each run's share of
-    the sources (2, B, runs, 2K): ``v[j] = P**j v[0] + sum over i < j of P**(j - 1 -
-    i) (M a[i] + S[i])`` with ``a[i] = keep row[i] + frac row[i + 1]``."""
-    powers = np.empty((run + 1,) + s.p.shape)
-    powers[0] = np.eye(2)
-    for j in range(run):
-        np.matmul(s.p, powers[j], out=powers[j + 1])
-    gap = np.arange(run)[:, None] - np.arange(run)[None, :]          # j - i
-    lower = np.where((gap >= 0)[:, :, None, None, None, None],
-                     powers[np.clip(gap, 0, run)], 0.0)    # (K_j, K_i, 2, B, 2, 2)
-    lower = lower.transpose(2, 3, 0, 1, 4, 5)              # (2, B, K_j, K_i, 2, 2)
-    nb = lower.shape[1]
-    on_a = (lower.reshape(2, nb, -1, 2) @ s.m).reshape(lower.shape).transpose(
-        0, 1, 2, 4, 3, 5)
-    on_u = lower.transpose(0, 1, 2, 4, 3, 5)               # (2, B, K_j, 2, K_i, 2)
-    mat = np.zeros((2, s.p.shape[1], run, 2, run + 2, 2))
-    mat[:, :, :, :, 0] = np.moveaxis(powers[1:], 0, 2)     # v[0]
-    mat[:, :, :, :, 1:-1] += on_a * s.keep[:, :, None, None, None, :]
-    mat[:, :, :, :, 2:] += on_a * s.frac[:, :, None, None, None, :]
-    nrun = -(-nt // run)
-    s_n = np.concatenate([s.s_n, np.repeat(s.s_n[-1:], nrun * run - nt, axis=0)])
-    s_n = s_n.reshape(nrun, run, 2, nb, 2)
-    lower = on_u.reshape(2, nb, 2 * run, 2 * run)
-    share = np.empty((2, nb, nrun, 2 * run))
-    const = np.all(s_n == s_n[:, :1], axis=(1, 2, 3, 4))
-    if const.any():                                        # constant sources: summed
-        total = on_u.sum(axis=4)                           # (2, B, K_j, 2, 2)
-        share[:, :, const] = (total.reshape(2, nb, 2 * run, 2) @ np.ascontiguousarray(
-            s_n[const, 0].transpose(1, 2, 3, 0))).swapaxes(2, 3)
-    if not const.all():
-        var = s_n[~const].transpose(2, 3, 1, 4, 0).reshape(2, nb, 2 * run, -1)
-        share[:, :, ~const] = (lower @ var).swapaxes(2, 3)
-    return mat.reshape(2, nb, 2 * run, 2 * run + 4), share
+            np.matmul(s.p, col[n], out=p_v)
+            np.add(u[n - n0], p_v, out=col[n + 1])
+        v = v_ends[n0 + 1:n1 + 1]
+        i = s.src[n0:n1] - s.gk * v
+        i += s.k * v_ends[n0:n1]
+        sent = v @ _T
+        sent += s.z * (i @ _T)
+        s.rows[s.pad + n0:s.pad + n1] = sent
 
 
 def _one_by_one(s: _Setup, v_ends: np.ndarray) -> None:
@@ -414,121 +379,3 @@ def _one_by_one(s: _Setup, v_ends: np.ndarray) -> None:
 
 def _matvec(m, x):
     return np.matmul(m, x[..., None])[..., 0]
-
-
-def _in_blocks(s: _Setup, lag, v_dc, nt: int) -> np.ndarray:
-    """``v_ends[1:]`` of G pairs, shape (nt, 2, G, 2), marched :data:`_BLOCK` steps at a
-    time by the march's state-space form (:func:`_one_step`): a block's voltages and
-    the state it leaves (its last voltage and R rows of waves) are its start's state
-    times one matrix per pair (:func:`_block_gain`), plus its inputs' share
-    (:func:`_input_share`).  One matrix product a block, whatever the delays; its size
-    grows with the rows a pair reads back, so only short delays come here.
-    ``s`` is a :func:`_setup` without its record.
-    """
-    a, b_in = _one_step(s, lag)
-    g, size = a.shape[0], a.shape[1]
-    gain, taps, keep = _block_gain(a, b_in)
-    nblk = -(-nt // _BLOCK)
-    moved = np.flatnonzero(np.any(s.src[1:] != s.src[:-1], axis=(1, 2, 3)))
-    nvar = 0 if moved.size == 0 else -(-(int(moved[-1]) + 2) // _BLOCK)
-    # the inputs [S[n], src[n]] of the blocks whose sources move, and the constant after
-    src = s.src[np.minimum(np.arange(nvar * _BLOCK), len(s.src) - 1)]
-    u = np.concatenate([np.moveaxis(x, 2, 0).reshape(g, nvar, _BLOCK, 4)
-                        for x in ((s.s_n @ src[..., None])[..., 0], src)], axis=-1)
-    last = np.concatenate([np.moveaxis(x, 1, 0).reshape(g, 4)
-                           for x in ((s.s_n @ s.src[-1, ..., None])[..., 0], s.src[-1])],
-                          axis=-1)
-    moving, steady = _input_share(taps, u, last, keep)
-    out = np.empty((nblk, g, keep.size))
-    state = np.concatenate([np.moveaxis(v_dc, 1, 0).reshape(g, 4),
-                            np.tile(np.moveaxis(s.rows[0], 1, 0).reshape(g, 4),
-                                    (size - 4) // 4)], axis=1)
-    for i in range(nblk):
-        np.matmul(gain, state[..., None], out=out[i, :, :, None])
-        out[i] += moving[i] if i < nvar else steady
-        state = out[i, :, 4 * _BLOCK - 4:]
-    v = out[:, :, :4 * _BLOCK].reshape(nblk, g, _BLOCK, 2, 2)
-    return np.moveaxis(v, 2, 1).reshape(nblk * _BLOCK, g, 2, 2)[:nt].swapaxes(1, 2)
-
-
-def _block_gain(a, b_in):
-    """What a block of K = :data:`_BLOCK` steps makes of its start's state and of its
-    inputs.  Row ``j`` of ``rows`` (K + 1, G, 8, 4 + 4R) is ``a**j`` read at the
-    newest voltage and waves, so step j of a block gives ``rows[j + 1] @ state``
-    plus ``taps[j - i] @ u[i]`` (taps (G, K, 8, 8)) of its inputs.  Of those K x 8
-    values the block keeps (``keep``) its K voltages and the R newest rows of waves:
-    ``gain`` (G, 4K + 4R, 4 + 4R)."""
-    g, size = a.shape[0], a.shape[1]
-    reach = (size - 4) // 4
-    rows = np.empty((_BLOCK + 1, g, 8, size))
-    rows[0] = 0.0
-    rows[0, :, :4, :4] = np.eye(4)
-    rows[0, :, 4:, size - 4:] = np.eye(4)
-    for j in range(_BLOCK):
-        np.matmul(rows[j], a, out=rows[j + 1])
-    taps = np.moveaxis(rows[:_BLOCK] @ b_in, 0, 1)                  # (G, K, 8, 8)
-    keep = np.concatenate([(8 * np.arange(_BLOCK)[:, None] + np.arange(4)).ravel(),
-                           (8 * np.arange(_BLOCK - reach, _BLOCK)[:, None]
-                            + np.arange(4, 8)).ravel()])
-    gain = np.moveaxis(rows[1:], 0, 1).reshape(g, 8 * _BLOCK, size)[:, keep]
-    return gain, taps, keep
-
-
-def _input_share(taps, u, last, keep):
-    """The blocks' outputs (``keep`` of their K x 8) from their own inputs: of each block
-    whose sources move (u: (G, nvar, K, 8)), step j takes ``sum over i <= j of
-    taps[j - i] @ u[i]``, (nvar, G, 4K + 4R); of every later block, whose inputs stay
-    at ``last`` (G, 8), the running sums of the taps times it, (G, 4K + 4R)."""
-    g, nvar, kb, _ = u.shape
-    steady = (np.cumsum(taps, axis=1) @ last[:, None, :, None]).reshape(g, -1)[:, keep]
-    # the inputs before each step, latest last: row j holds u[j - K + 1 .. j] (zero
-    # before the block), a strided view of the block after K - 1 rows of zeros
-    pre = np.concatenate([np.zeros((g, nvar, kb - 1, 8)), u], axis=2)
-    window = as_strided(pre, (g, nvar, kb, kb * 8), pre.strides[:2] + pre.strides[2:])
-    moving = window @ np.swapaxes(taps[:, ::-1], 2, 3).reshape(g, 1, kb * 8, 8)
-    return np.moveaxis(moving.reshape(g, nvar, kb * 8)[:, :, keep], 1, 0), steady
-
-
-def _one_step(s: _Setup, lag):
-    """One step of the march as a linear map of G pairs: ``state' = a @ state + b_in @
-    u``, the state ``[v (end, conductor), then the waves sent (end, mode) R rows back
-    to one]`` (4 + 4R values), ``u = [S[n], src[n]]`` (the sources' two terms), R the
-    most rows back a pair reads.  Returns ``a`` (G, 4 + 4R, 4 + 4R) and ``b_in``
-    (G, 4 + 4R, 8)."""
-    g = s.z.shape[0]
-    back = np.ceil(lag).astype(int)                    # rows back of the first tap
-    reach = int(back.max())
-    size = 4 + 4 * reach
-    cases = np.arange(g)
-    # the incoming waves a (end e, mode j): the other end's waves at two taps
-    read = np.zeros((g, 4, size))
-    for e in range(2):
-        for j in range(2):
-            col = 4 + 4 * (reach - back[:, j]) + 2 * (1 - e) + j
-            read[cases, 2 * e + j, col] = s.keep[e, :, j]
-            two = back[:, j] > 1                       # a lag of one step: weight 0
-            read[cases[two], 2 * e + j, col[two] + 4] = s.frac[e, two, j]
-    v_x = _blockdiag(s.m) @ read
-    v_x[:, :, :4] += _blockdiag(s.p)
-    v_u = np.eye(4, 8)
-    gk, k = (np.moveaxis(x, 1, 0).reshape(g, 4, 1) for x in (s.gk, s.k))
-    i_x = -gk * v_x
-    i_x[:, :, :4] += k * np.eye(4)
-    i_u = -gk * v_u + np.eye(4, 8, 4)
-    tt = np.kron(np.eye(2), _T)
-    zz = np.tile(s.z, 2)[:, :, None]                   # mode j of each end
-    a = np.zeros((g, size, size))
-    a[:, :4] = v_x
-    a[:, 4:size - 4, 8:] = np.eye(size - 8)            # the older waves move down a row
-    a[:, size - 4:] = tt @ v_x + zz * (tt @ i_x)
-    b_in = np.zeros((g, size, 8))
-    b_in[:, :4] = v_u
-    b_in[:, size - 4:] = tt @ v_u + zz * (tt @ i_u)
-    return a, b_in
-
-
-def _blockdiag(x):
-    """(2, G, 2, 2) -> (G, 4, 4): each pair's two ends' matrices on the diagonal."""
-    out = np.zeros((x.shape[1], 4, 4))
-    out[:, :2, :2], out[:, 2:, 2:] = x[0], x[1]
-    return out
