@@ -395,7 +395,10 @@ def _march_single(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
     """:func:`march` for one case: each run one matrix product per node.
 
     Every run is a whole block: the record is solved past its end to a whole number of
-    runs (the source held), and cut.
+    runs (the source held), and cut.  Each run's voltages are the product's own output
+    (``(runs, nodes, block)``, laid out as the record once at the end), and a record
+    whose launched waves are kept whole reads a run's from a view starting at it, so a
+    run is seven numpy calls; the arithmetic is the same, to the last bit.
     """
     n_nodes, src, port_node = net.a.shape[0], net.source, net.port_node
     block = _run_length(net, n_t)
@@ -419,6 +422,8 @@ def _march_single(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
     writes: list = [None] * len(reads)
     frac = net.port_frac[:, None] if np.any(net.port_frac > 0.0) else None
     weight = net.incidence * (2.0 * net.port_g[:, 0])[None, :]           # (N, P)
+    # each port at its own node, in node order: a node's launched wave is its voltage
+    by_node = port_node.size == n_nodes and bool(np.all(port_node == np.arange(n_nodes)))
     src_cur = np.empty(n_all)
     src_cur[:n_t] = net.g_source[0] * v_src[:, 0]
     src_cur[n_t:] = src_cur[n_t - 1]
@@ -426,32 +431,38 @@ def _march_single(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
     v_forced[:n_t] = v_src[:, 0]
     v_forced[n_t:] = v_forced[n_t - 1]
     forced = bool(net.forced[0])
-    volts = np.empty((n_nodes, n_all))
+    blocks = np.empty((runs, n_nodes, block, 1))   # each run's product, in place
     state = np.zeros((n_nodes, block + 2))                               # v, i, I[...]
     cur = state[:, 2:]
     state[src, 1] = src_cur[0]
     if forced:
         state[src, 0] = v_forced[0]
-    volts[:, 0] = state[:, 0]
+    first = state[:, 0].copy()
     column = state[:, :, None]
     for j, n in enumerate(range(1, n_all, block)):
-        if not full and reads[j % laps] is None:
-            reads[j % laps], writes[j % laps] = base + (reach + n) % size, (ahead + n) % size
-        got = flat_launched.take(flat + n if full else reads[j % laps])
+        if full:
+            got = flat_launched[n:].take(flat)
+        else:
+            if reads[j % laps] is None:
+                reads[j % laps], writes[j % laps] = (base + (reach + n) % size,
+                                                     (ahead + n) % size)
+            got = flat_launched.take(reads[j % laps])
         inc = got[:, 1:]
         if frac is not None:
             inc = inc + frac * (got[:, :-1] - inc)
         np.matmul(weight, inc, out=cur)
         cur[src] += src_cur[n:n + block]
-        w = np.matmul(mat, column)[:, :, 0]
+        w = np.matmul(mat, column, out=blocks[j])[:, :, 0]
         if forced:
             w[src] = v_forced[n:n + block]
-        volts[:, n:n + block] = w
+        sent = w if by_node else w.take(port_node, axis=0)
         if full:
-            np.subtract(w.take(port_node, axis=0), inc,
-                        out=launched[:, pad + n:pad + n + block])
+            np.subtract(sent, inc, out=launched[:, pad + n:pad + n + block])
         else:
-            launched[:, writes[j % laps]] = w.take(port_node, axis=0) - inc
+            launched[:, writes[j % laps]] = sent - inc
         state[:, 0] = w[:, -1]
         state[:, 1] = cur[:, -1]
-    return volts[:, :n_t, None]
+    volts = np.empty((n_nodes, n_t, 1))
+    volts[:, 0, 0] = first
+    volts[:, 1:, 0] = blocks[:, :, :, 0].transpose(1, 0, 2).reshape(n_nodes, -1)[:, :n_t - 1]
+    return volts
