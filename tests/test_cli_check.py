@@ -182,6 +182,8 @@ NOT_ON_THE_CHECK_PATH = (
     "pinlib.library.fields",
     # SHA-256 from CPython's own module: OpenSSL is not loaded (pinlib.core.digest)
     "hashlib", "_hashlib",
+    # the JEDEC levels table: imported by pinlib.standards.logic_levels when first asked for
+    "pinlib.standards.jedec",
 )
 
 
