@@ -13,7 +13,7 @@ from pinlib.engines.pushline.pins import Endpoint, Flight
 from pinlib.engines.pushline.routes import RouteNet, node_caps, tree_edges
 from pinlib.engines.pushline.rules import _REF_LEVEL
 from pinlib.engines.pushline.sections import Stretch, line_model, needs_distributed
-from pinlib.engines.pushline.waves import EdgeWave, simulate_edge
+from pinlib.engines.pushline.waves import EdgeWave, simulate_edge, solve_edges
 from pinlib.library.schema import Pin
 from pinlib.model.design import Device
 from pinlib.physics import driver as drv
@@ -233,6 +233,8 @@ def drive_case(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver
     """
     plan = edge_plan(stretches, driver, model, loads, rs, extra_c, long=long,
                      r_pullup=r_pullup, v_pullup=v_pullup)
+    solve_edges(stretches, [(*plan.rise[:3], plan.rise_distributed),
+                            (*plan.fall[:3], plan.distributed)])  # both in one march
     rise = simulate_edge(stretches, *plan.rise, distributed=plan.rise_distributed,
                          edge="rise")
     fall = simulate_edge(stretches, *plan.fall, distributed=plan.distributed, edge="fall")
