@@ -6,11 +6,11 @@ from __future__ import annotations
 import warnings
 from collections.abc import Sequence
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 from pinlib.core.errors import PinlibError
 from pinlib.engines import memo
 from pinlib.engines.pushline.pins import Endpoint, Flight
-from pinlib.engines.pushline.routes import RouteNet, node_caps, tree_edges
 from pinlib.engines.pushline.rules import _REF_LEVEL
 from pinlib.engines.pushline.sections import Stretch, line_model, needs_distributed
 from pinlib.engines.pushline.waves import EdgeWave, simulate_edge, solve_edges
@@ -18,6 +18,9 @@ from pinlib.library.schema import Pin
 from pinlib.model.design import Device
 from pinlib.physics import driver as drv
 from pinlib.physics import rc
+
+if TYPE_CHECKING:  # a routed line's tree: imported by route_case
+    from pinlib.engines.pushline.routes import RouteNet
 
 
 @dataclass
@@ -352,6 +355,8 @@ def route_case(net: RouteNet, stretches: Sequence[Stretch], driver: Endpoint,
     devices whose edges the checks read (the line's receivers); the records of the other
     points are not kept (made again if read), None keeps every point's.
     """
+    from pinlib.engines.pushline.routes import node_caps, tree_edges
+
     caps = node_caps(net, {p.ref: p.c_in for p in loads}, extra_c)
     src = net.node(driver.ref)
     delays = net.delays_from(src)

@@ -17,7 +17,6 @@ from pinlib.core.errors import InputError
 from pinlib.physics.rc import ramp_rc_response
 from pinlib.physics.waveform.march import _batch_shape, _non_negative
 from pinlib.physics.waveform.metrics import _edge_sign
-from pinlib.physics.waveform.rowgrids import tree_rows
 from pinlib.physics.waveform.tree import _tree, trees
 
 __all__ = ["Waveform", "lumped_response", "distributed_response"]
@@ -189,6 +188,8 @@ def distributed_response(t, vdd, t_ramp, r_source, sections, c_load, c_mid=None,
     """
     chain, caps, names = _chain(sections, c_load, c_mid, mid_junction, edge)
     if np.ndim(t) == 2:  # one grid per case: the row solver checks its own shapes
+        from pinlib.physics.waveform.rowgrids import tree_rows  # a batched study's only
+
         w = tree_rows(t, vdd, t_ramp, r_source, chain, caps, 0, edge, stacklevel=4)
     else:
         w = _tree(t, vdd, t_ramp, r_source, chain, caps, 0, edge, stacklevel=4,
