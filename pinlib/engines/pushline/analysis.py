@@ -7,15 +7,18 @@ import math
 import warnings
 from collections.abc import Sequence
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from pinlib.core.quantity import format_si
 from pinlib.engines.pushline.drive import DriveCase, drive_case, route_case
 from pinlib.engines.pushline.pins import Endpoint
-from pinlib.engines.pushline.routes import RouteNet
 from pinlib.model.design import Line
 from pinlib.model.result import LineResult
+
+if TYPE_CHECKING:  # a routed line's tree: imported by the line that has one
+    from pinlib.engines.pushline.routes import RouteNet
 
 
 @dataclass

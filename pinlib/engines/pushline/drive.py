@@ -6,18 +6,21 @@ from __future__ import annotations
 import warnings
 from collections.abc import Sequence
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 from pinlib.core.errors import PinlibError
 from pinlib.engines import memo
 from pinlib.engines.pushline.pins import Endpoint, Flight
-from pinlib.engines.pushline.routes import RouteNet, node_caps, tree_edges
 from pinlib.engines.pushline.rules import _REF_LEVEL
 from pinlib.engines.pushline.sections import Stretch, line_model, needs_distributed
-from pinlib.engines.pushline.waves import EdgeWave, simulate_edge
+from pinlib.engines.pushline.waves import EdgeWave, simulate_edge, solve_edges
 from pinlib.library.schema import Pin
 from pinlib.model.design import Device
 from pinlib.physics import driver as drv
 from pinlib.physics import rc
+
+if TYPE_CHECKING:  # a routed line's tree: imported by route_case
+    from pinlib.engines.pushline.routes import RouteNet
 
 
 @dataclass
@@ -233,6 +236,8 @@ def drive_case(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver
     """
     plan = edge_plan(stretches, driver, model, loads, rs, extra_c, long=long,
                      r_pullup=r_pullup, v_pullup=v_pullup)
+    solve_edges(stretches, [(*plan.rise[:3], plan.rise_distributed),
+                            (*plan.fall[:3], plan.distributed)])  # both in one march
     rise = simulate_edge(stretches, *plan.rise, distributed=plan.rise_distributed,
                          edge="rise")
     fall = simulate_edge(stretches, *plan.fall, distributed=plan.distributed, edge="fall")
@@ -350,6 +355,8 @@ def route_case(net: RouteNet, stretches: Sequence[Stretch], driver: Endpoint,
     devices whose edges the checks read (the line's receivers); the records of the other
     points are not kept (made again if read), None keeps every point's.
     """
+    from pinlib.engines.pushline.routes import node_caps, tree_edges
+
     caps = node_caps(net, {p.ref: p.c_in for p in loads}, extra_c)
     src = net.node(driver.ref)
     delays = net.delays_from(src)

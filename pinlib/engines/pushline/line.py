@@ -12,7 +12,6 @@ from pinlib.engines import memo
 from pinlib.engines.pushline.analysis import LineAnalysis, _figures_of, _fmt, _others
 from pinlib.engines.pushline.drive import _driver_model, _open_drain_model, _pullups
 from pinlib.engines.pushline.pins import Endpoint
-from pinlib.engines.pushline.routes import route_net
 from pinlib.engines.pushline.rules import (
     _FIGURE_UNITS,
     LINE_DELAY_RULE,
@@ -149,7 +148,7 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
     series resistor and the final cases, checks, figures."""
     notes = res.notes
     stretches = line_stretches(line)
-    net = route_net(line.route, stretches) if line.route else None
+    net = _route_net(line.route, stretches) if line.route else None
     a = LineAnalysis(signal, line, stretches, list(drivers), list(loads), list(receivers),
                      result=res, net=net)
     if not a.drivers:
@@ -298,3 +297,11 @@ def _add_figures(a: LineAnalysis, res: LineResult) -> None:
     if not a.long:
         res.notes.append(("distributed" if used else "lumped") + f" model: {LUMPED_RULE}")
     res.figure("delay_to_edge_ratio", a.ratio, "")
+
+
+def _route_net(route, stretches):
+    """:func:`pinlib.engines.pushline.routes.route_net`, imported by the first routed
+    line (a design of point-to-point lines does without the tree solver's set-up)."""
+    from pinlib.engines.pushline.routes import route_net
+
+    return route_net(route, stretches)

@@ -4,13 +4,14 @@ from __future__ import annotations
 
 import functools
 import math
+import warnings
 from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
 
 from pinlib.core import messages as M
-from pinlib.core.errors import InputError
+from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.quantity import format_si
 from pinlib.engines import memo
 from pinlib.engines.pushline.rules import (
@@ -286,3 +287,43 @@ def _unit_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float, c_f
             break
         g = edge_grid(stretches, r_source, t_ramp, c_far, distributed, 3.0 * g.t_end)
     return g.t, unit, bool(settled)
+
+
+def solve_edges(stretches: Sequence[Stretch], requests: Sequence[tuple]) -> None:
+    """Solve together, into the run's memo, the unit edges :func:`simulate_edge` is about
+    to ask for on one line: ``requests`` holds ``(r_source, t_ramp, c_far,
+    distributed)`` of each (a driver's rise and fall).
+
+    The distributed edges not yet held, on the first grid :func:`_unit_edge` takes,
+    are marched together (:func:`pinlib.physics.waveform.distributed_responses`: each
+    record the single solve's to the last bit); each that settled is kept under its
+    key.  Nothing is kept from a solve that warned or refused (the engine then solves
+    and reports it itself), and nothing is done outside a run or for fewer than two
+    edges to solve.
+    """
+    if not memo.active():
+        return
+    todo: dict = {}
+    for r_source, t_ramp, c_far, distributed in requests:
+        key = unit_edge_key(stretches, r_source, t_ramp, c_far, distributed)
+        if key in todo or memo.known(key):
+            continue
+        try:
+            g = edge_grid(stretches, r_source, t_ramp, c_far, distributed)
+        except PinlibError:
+            return
+        if g.distributed:
+            todo[key] = (g.t, 1.0, t_ramp, r_source, g.sections, g.c_lumped_far)
+    if len(todo) < 2:
+        return
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        try:
+            got = wf.distributed_responses(list(todo.values()))
+        except PinlibError:
+            return
+    if caught:
+        return
+    for (key, case), w in zip(todo.items(), got, strict=True):
+        if is_settled(w.v):
+            memo.keep(key, (case[0], w.v, True))

@@ -10,6 +10,8 @@ from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.physics.pullup.inputs import _arr, _non_negative, _out, _positive
 
+_INF = float("inf")
+
 __all__ = ["parallel", "sink_resistance", "low_level", "sink_current", "high_level",
            "static_power", "translator_low_levels"]
 
@@ -34,6 +36,16 @@ def parallel(*resistances):
     """
     if not resistances:
         raise InputError(M.NO_RESISTANCES, field="resistances")
+    if all(isinstance(r, float) and r > 0.0 for r in resistances):
+        # numbers (most calls): the same sum and division in floats, which round as
+        # numpy's do; a sum that overflows takes the arrays' path (and its warning)
+        g = 0
+        for r in resistances:
+            g = g + 1.0 / r
+        if not g > 0:  # every contributor absent
+            return np.float64(_INF)
+        if g < _INF and 1.0 / g < _INF:
+            return np.float64(1.0 / g)
     arrays = [_positive(r, "resistances", "[Ω]", allow_inf=True) for r in resistances]
     g = sum(1.0 / a for a in np.broadcast_arrays(*arrays))
     with np.errstate(divide="ignore"):

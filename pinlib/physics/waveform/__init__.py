@@ -33,6 +33,7 @@ from pinlib.core.errors import InputError, ValidityWarning  # noqa: F401
 from pinlib.physics.waveform.circuits import (  # noqa: F401
     Waveform,
     distributed_response,
+    distributed_responses,
     lumped_response,
 )
 from pinlib.physics.waveform.march import (  # noqa: F401
@@ -72,6 +73,7 @@ __all__ = [
     "recrossings",
     "lumped_response",
     "distributed_response",
+    "distributed_responses",
     "TreeWaveform",
     "tree_response",
     "choose_step",

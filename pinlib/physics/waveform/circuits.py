@@ -17,8 +17,7 @@ from pinlib.core.errors import InputError
 from pinlib.physics.rc import ramp_rc_response
 from pinlib.physics.waveform.march import _batch_shape, _non_negative
 from pinlib.physics.waveform.metrics import _edge_sign
-from pinlib.physics.waveform.rowgrids import tree_rows
-from pinlib.physics.waveform.tree import _tree
+from pinlib.physics.waveform.tree import _tree, trees
 
 __all__ = ["Waveform", "lumped_response", "distributed_response"]
 
@@ -187,6 +186,32 @@ def distributed_response(t, vdd, t_ramp, r_source, sections, c_load, c_mid=None,
     >>> round(float(w.v[199]), 3), round(float(w.v[201]), 3)
     (0.0, 1.0)
     """
+    chain, caps, names = _chain(sections, c_load, c_mid, mid_junction, edge)
+    if np.ndim(t) == 2:  # one grid per case: the row solver checks its own shapes
+        from pinlib.physics.waveform.rowgrids import tree_rows  # a batched study's only
+
+        w = tree_rows(t, vdd, t_ramp, r_source, chain, caps, 0, edge, stacklevel=4)
+    else:
+        w = _tree(t, vdd, t_ramp, r_source, chain, caps, 0, edge, stacklevel=4,
+                  cap_names=names)
+    return Waveform(w.t, w.v[..., -1, :], w.v if all_junctions else None)
+
+
+def distributed_responses(cases) -> list[Waveform]:
+    """:func:`distributed_response` (far end) of each of ``cases``, ``(t, vdd, t_ramp,
+    r_source, sections, c_load)`` on a grid of its own (1-D), the single cases of one
+    shape solved together (:func:`pinlib.physics.waveform.tree.trees`): each the
+    same to the last bit."""
+    args = []
+    for t, vdd, t_ramp, r_source, sections, c_load in cases:
+        chain, caps, names = _chain(sections, c_load, None, 1, "rise")
+        args.append((t, vdd, t_ramp, r_source, chain, caps, 0, "rise", 4, names))
+    return [Waveform(w.t, w.v[..., -1, :], None) for w in trees(args)]
+
+
+def _chain(sections, c_load, c_mid, mid_junction, edge) -> tuple[list, list, list]:
+    """:func:`distributed_response`'s checked chain: its lines, node capacitances and
+    their names."""
     _edge_sign(edge)
     pairs = []
     for k, section in enumerate(sections):
@@ -215,10 +240,4 @@ def distributed_response(t, vdd, t_ramp, r_source, sections, c_load, c_mid=None,
                           ("c_mid", np.asarray(c_mid, dtype=float))])
         caps[mid_junction] = caps[mid_junction] + np.asarray(c_mid, dtype=float)
         names[mid_junction] = "c_load + c_mid" if mid_junction == len(pairs) else "c_mid"
-    chain = [(k, k + 1, z0, td) for k, (z0, td) in enumerate(pairs)]
-    if np.ndim(t) == 2:  # one grid per case: the row solver checks its own shapes
-        w = tree_rows(t, vdd, t_ramp, r_source, chain, caps, 0, edge, stacklevel=4)
-    else:
-        w = _tree(t, vdd, t_ramp, r_source, chain, caps, 0, edge, stacklevel=4,
-                  cap_names=names)
-    return Waveform(w.t, w.v[..., -1, :], w.v if all_junctions else None)
+    return [(k, k + 1, z0, td) for k, (z0, td) in enumerate(pairs)], caps, names

@@ -21,9 +21,12 @@ for the run at once and the first-order recurrence is summed for the run by doub
 operations per run whatever the batch, stable for every ``a`` in [0, 1].  A single case
 on short runs (at most ``_SINGLE_BLOCK`` steps) sums the same recurrence, with the
 ``c_now``/``c_prev`` mixing and the state carried in, as one small matrix product per node
-and run (``_run_matrix``): about ten numpy calls a run instead of 25-35, where those
-calls' fixed cost, not the arithmetic, is the time.  A delay that is not a whole number
-of steps reads the launched wave by linear interpolation.
+and run (``_run_matrix``): seven numpy calls a run instead of 25-35, where those
+calls' fixed cost, not the arithmetic, is the time.  Several such cases of one shape
+(nodes, ports, delays, run) march in lockstep (:func:`march_cases`), each run's
+products one stacked call whose members numpy computes as it would alone: each record
+is the single march's to the last bit, for about the calls of one.  A delay that is not
+a whole number of steps reads the launched wave by linear interpolation.
 
 Layout inside: a batch marches time-major, ``(time, node or port, batch)``: a run of
 the record is one contiguous slab, summed in the returned array itself, and the
@@ -395,7 +398,10 @@ def _march_single(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
     """:func:`march` for one case: each run one matrix product per node.
 
     Every run is a whole block: the record is solved past its end to a whole number of
-    runs (the source held), and cut.
+    runs (the source held), and cut.  Each run's voltages are the product's own output
+    (``(runs, nodes, block)``, laid out as the record once at the end), and a record
+    whose launched waves are kept whole reads a run's from a view starting at it, so a
+    run is seven numpy calls; the arithmetic is the same, to the last bit.
     """
     n_nodes, src, port_node = net.a.shape[0], net.source, net.port_node
     block = _run_length(net, n_t)
@@ -419,6 +425,8 @@ def _march_single(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
     writes: list = [None] * len(reads)
     frac = net.port_frac[:, None] if np.any(net.port_frac > 0.0) else None
     weight = net.incidence * (2.0 * net.port_g[:, 0])[None, :]           # (N, P)
+    # each port at its own node, in node order: a node's launched wave is its voltage
+    by_node = port_node.size == n_nodes and bool(np.all(port_node == np.arange(n_nodes)))
     src_cur = np.empty(n_all)
     src_cur[:n_t] = net.g_source[0] * v_src[:, 0]
     src_cur[n_t:] = src_cur[n_t - 1]
@@ -426,32 +434,134 @@ def _march_single(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
     v_forced[:n_t] = v_src[:, 0]
     v_forced[n_t:] = v_forced[n_t - 1]
     forced = bool(net.forced[0])
-    volts = np.empty((n_nodes, n_all))
+    blocks = np.empty((runs, n_nodes, block, 1))   # each run's product, in place
     state = np.zeros((n_nodes, block + 2))                               # v, i, I[...]
     cur = state[:, 2:]
     state[src, 1] = src_cur[0]
     if forced:
         state[src, 0] = v_forced[0]
-    volts[:, 0] = state[:, 0]
+    first = state[:, 0].copy()
     column = state[:, :, None]
     for j, n in enumerate(range(1, n_all, block)):
-        if not full and reads[j % laps] is None:
-            reads[j % laps], writes[j % laps] = base + (reach + n) % size, (ahead + n) % size
-        got = flat_launched.take(flat + n if full else reads[j % laps])
+        if full:
+            got = flat_launched[n:].take(flat)
+        else:
+            if reads[j % laps] is None:
+                reads[j % laps], writes[j % laps] = (base + (reach + n) % size,
+                                                     (ahead + n) % size)
+            got = flat_launched.take(reads[j % laps])
         inc = got[:, 1:]
         if frac is not None:
             inc = inc + frac * (got[:, :-1] - inc)
         np.matmul(weight, inc, out=cur)
         cur[src] += src_cur[n:n + block]
-        w = np.matmul(mat, column)[:, :, 0]
+        w = np.matmul(mat, column, out=blocks[j])[:, :, 0]
         if forced:
             w[src] = v_forced[n:n + block]
-        volts[:, n:n + block] = w
+        sent = w if by_node else w.take(port_node, axis=0)
         if full:
-            np.subtract(w.take(port_node, axis=0), inc,
-                        out=launched[:, pad + n:pad + n + block])
+            np.subtract(sent, inc, out=launched[:, pad + n:pad + n + block])
         else:
-            launched[:, writes[j % laps]] = w.take(port_node, axis=0) - inc
+            launched[:, writes[j % laps]] = sent - inc
         state[:, 0] = w[:, -1]
         state[:, 1] = cur[:, -1]
-    return volts[:, :n_t, None]
+    volts = np.empty((n_nodes, n_t, 1))
+    volts[:, 0, 0] = first
+    volts[:, 1:, 0] = blocks[:, :, :, 0].transpose(1, 0, 2).reshape(n_nodes, -1)[:, :n_t - 1]
+    return volts
+
+
+def _structure(net: Network, n_t: int) -> tuple | None:
+    """What cases marched together by :func:`march_cases` must share (the nodes, the
+    ports, the delays, the source and the run), or None for a case :func:`march` does
+    not march alone by :func:`_march_single`."""
+    block = _run_length(net, n_t)
+    if net.a.shape[1] != 1 or not net.port_node.size or block > _SINGLE_BLOCK:
+        return None
+    return (net.a.shape[0], net.source, bool(net.forced[0]), block,
+            net.port_node.tobytes(), net.port_partner.tobytes(), net.port_delay.tobytes(),
+            net.port_frac.tobytes())
+
+
+def march_cases(cases: list) -> list:
+    """:func:`march` of several single cases ``(net, v_src, n_t)`` at once: the cases of
+    one :func:`_structure` run in lockstep, each run's products a stack of the same
+    products :func:`_march_single` forms (numpy's matmul makes each member's call as
+    alone), so each record is :func:`march`'s to the last bit; any other case is marched
+    alone."""
+    out: list = [None] * len(cases)
+    groups: dict = {}
+    for i, (net, _, n_t) in enumerate(cases):
+        groups.setdefault(_structure(net, n_t) or ("alone", i), []).append(i)
+    for key, members in groups.items():
+        pad = int(cases[members[0]][0].port_delay.max()) + 1 if key[0] != "alone" else 0
+        n_all = max(cases[i][2] for i in members) + (key[3] if key[0] != "alone" else 0)
+        if (len(members) == 1 or len(members) * cases[members[0]][0].port_node.size
+                * (pad + n_all) > _MAX_BUFFER_ELEMENTS):
+            for i in members:
+                out[i] = march(*cases[i])
+            continue
+        for i, volts in zip(members, _march_stack([cases[i] for i in members], key[3]),
+                            strict=True):
+            out[i] = volts
+    return out
+
+
+def _march_stack(cases: list, block: int) -> list:
+    """:func:`_march_single` of cases of one :func:`_structure` in lockstep (the launched
+    waves of every record kept whole): the same operations on a leading axis of cases,
+    each record run to the longest's whole runs (its own source held) and cut."""
+    net0, k = cases[0][0], len(cases)
+    n_nodes, src, port_node = net0.a.shape[0], net0.source, net0.port_node
+    n_ports = port_node.size
+    mat = np.stack([_run_matrix(net, block) for net, _, _ in cases])   # (K, N, m, m + 2)
+    runs = max(-(-(n_t - 1) // block) for _, _, n_t in cases)
+    n_all = 1 + runs * block
+    pad = int(net0.port_delay.max()) + 1
+    size = pad + n_all
+    launched = np.zeros((k, n_ports, size))
+    flat_launched = launched.reshape(-1)
+    reach = pad - 1 - net0.port_delay[:, None] + np.arange(block + 1)[None, :]
+    flat = (np.arange(k)[:, None, None] * (n_ports * size)
+            + (net0.port_partner[:, None] * size + reach)[None])        # (K, P, m + 1)
+    frac = net0.port_frac[:, None] if np.any(net0.port_frac > 0.0) else None
+    weight = np.stack([net.incidence * (2.0 * net.port_g[:, 0])[None, :]
+                       for net, _, _ in cases])                          # (K, N, P)
+    by_node = n_ports == n_nodes and bool(np.all(port_node == np.arange(n_nodes)))
+    src_cur, v_forced = np.empty((k, n_all)), np.empty((k, n_all))
+    for c, (net, v_src, n_t) in enumerate(cases):
+        src_cur[c, :n_t] = net.g_source[0] * v_src[:, 0]
+        src_cur[c, n_t:] = src_cur[c, n_t - 1]
+        v_forced[c, :n_t] = v_src[:, 0]
+        v_forced[c, n_t:] = v_forced[c, n_t - 1]
+    forced = bool(net0.forced[0])
+    blocks = np.empty((runs, k, n_nodes, block, 1))
+    state = np.zeros((k, n_nodes, block + 2))                            # v, i, I[...]
+    cur = state[:, :, 2:]
+    state[:, src, 1] = src_cur[:, 0]
+    if forced:
+        state[:, src, 0] = v_forced[:, 0]
+    first = state[:, :, 0].copy()
+    column = state[:, :, :, None]
+    for j, n in enumerate(range(1, n_all, block)):
+        got = flat_launched[n:].take(flat)
+        inc = got[:, :, 1:]
+        if frac is not None:
+            inc = inc + frac * (got[:, :, :-1] - inc)
+        np.matmul(weight, inc, out=cur)
+        cur[:, src] += src_cur[:, n:n + block]
+        w = np.matmul(mat, column, out=blocks[j])[:, :, :, 0]
+        if forced:
+            w[:, src] = v_forced[:, n:n + block]
+        sent = w if by_node else w.take(port_node, axis=1)
+        np.subtract(sent, inc, out=launched[:, :, pad + n:pad + n + block])
+        state[:, :, 0] = w[:, :, -1]
+        state[:, :, 1] = cur[:, :, -1]
+    records = blocks[..., 0].transpose(1, 2, 0, 3).reshape(k, n_nodes, -1)
+    out = []
+    for c, (_, _, n_t) in enumerate(cases):
+        volts = np.empty((n_nodes, n_t, 1))
+        volts[:, 0, 0] = first[c]
+        volts[:, 1:, 0] = records[c, :, :n_t - 1]
+        out.append(volts)
+    return out

@@ -48,6 +48,7 @@ from pinlib.physics.waveform.march import (
     _source_samples,
     _time_grid,
     march,
+    march_cases,
     network,
 )
 from pinlib.physics.waveform.metrics import _edge_sign
@@ -124,6 +125,39 @@ def _tree(t, vdd, t_ramp, r_source, sections, node_caps, source, edge, *,
           stacklevel: int, cap_names: list[str] | None = None) -> TreeWaveform:
     """:func:`tree_response`; a rounded delay is warned ``stacklevel`` frames up, and a
     batch that does not broadcast names the node capacitances ``cap_names``."""
+    s = _tree_setup(t, vdd, t_ramp, r_source, sections, node_caps, source, edge,
+                    stacklevel=stacklevel + 1, cap_names=cap_names)
+    return _tree_finish(s, march(s.net, s.v_src, s.n_t))
+
+
+def trees(cases: list[tuple]) -> list[TreeWaveform]:
+    """:func:`_tree` of each of ``cases`` (its positional arguments, ``stacklevel`` and
+    ``cap_names``), the single cases of one shape marched together
+    (:func:`~pinlib.physics.waveform.march.march_cases`): each the same to the last bit."""
+    setups = [_tree_setup(*args, stacklevel=stacklevel + 1, cap_names=names)
+              for *args, stacklevel, names in cases]
+    volts = march_cases([(s.net, s.v_src, s.n_t) for s in setups])
+    return [_tree_finish(s, v) for s, v in zip(setups, volts, strict=True)]
+
+
+class _Setup(NamedTuple):
+    """A tree's companion network and source, and what shapes its records."""
+
+    t: np.ndarray
+    n_t: int
+    sign: float
+    net: object
+    v_src: np.ndarray
+    vdd_b: np.ndarray
+    node_of: np.ndarray
+    n_merged: int
+    n_nodes: int
+    batch_shape: tuple
+
+
+def _tree_setup(t, vdd, t_ramp, r_source, sections, node_caps, source, edge, *,
+                stacklevel: int, cap_names: list[str] | None = None) -> _Setup:
+    """:func:`_tree` up to its march."""
     sign = _edge_sign(edge)
     t, dt = _time_grid(t)
     n_t = t.size
@@ -155,13 +189,17 @@ def _tree(t, vdd, t_ramp, r_source, sections, node_caps, source, edge, *,
     net = network(n_merged, merged_lines, caps, rs_b, int(node_of[source]), dt)
     one = arrays[0].size == 1 and arrays[1].size == 1  # one source for the whole batch
     v_src = _source_samples(t, vdd_b[:1] if one else vdd_b, ramp_b[:1] if one else ramp_b).T
-    volts = march(net, v_src, n_t)                              # (merged, n, B)
-    if sign < 0:
-        volts = np.subtract(vdd_b, volts, out=volts)
-    if n_merged < n_nodes:  # joined nodes share their solver node's waveform
-        volts = volts[node_of]
-    v = np.transpose(volts, (2, 0, 1)).reshape(batch_shape + (n_nodes, n_t))
-    return TreeWaveform(t, v)
+    return _Setup(t, n_t, sign, net, v_src, vdd_b, node_of, n_merged, n_nodes, batch_shape)
+
+
+def _tree_finish(s: _Setup, volts: np.ndarray) -> TreeWaveform:
+    """The tree's waveforms from its march ``volts`` ``(merged, n, B)``."""
+    if s.sign < 0:
+        volts = np.subtract(s.vdd_b, volts, out=volts)
+    if s.n_merged < s.n_nodes:  # joined nodes share their solver node's waveform
+        volts = volts[s.node_of]
+    v = np.transpose(volts, (2, 0, 1)).reshape(s.batch_shape + (s.n_nodes, s.n_t))
+    return TreeWaveform(s.t, v)
 
 
 def choose_step(delays, t_ramp, *, tau=0.0, steps=STEPS_PER_EDGE) -> float:
