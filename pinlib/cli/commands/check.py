@@ -287,16 +287,15 @@ def _what_if(design, args, result) -> dict:
     start from ``result``, the design's checked just before."""
     out = {}
     progress = True if getattr(args, "progress", False) else None
+    buses = {b.id: b for b in result.buses}
     if getattr(args, "corners", False):
         from pinlib.studies.whatif import corners
 
-        out["corners"] = corners(design, progress=progress,
-                                 results={b.id: b for b in result.buses})
+        out["corners"] = corners(design, progress=progress, results=buses)
     if getattr(args, "monte_carlo", None) is not None:
         from pinlib.studies.whatif import monte_carlo
 
         out["monte_carlo"] = monte_carlo(design, args.monte_carlo, seed=args.seed,
-                                         progress=progress,
-                                         results={b.id: b for b in result.buses},
+                                         progress=progress, results=buses,
                                          couplings=result.couplings)
     return out

@@ -410,10 +410,10 @@ def _run_show(args) -> int:
 
     lib = _load(args)
     data = _show_data(lib, args.id)
-    cols = width()
     if args.json:
         print(json.dumps(data, indent=2, ensure_ascii=False))
         return 0
+    cols = width()
     print(f"{data['id']}: {data['title']}")
     facts = [f"category {data['category']}"]
     if data["abstract"]:
