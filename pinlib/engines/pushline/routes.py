@@ -148,13 +148,12 @@ class PointWaves:
         Levels before and after the edge. [V]
     """
 
-    def __init__(self, edge: str, t, unit, settled, v_from: float, v_to: float, *,
-                 span=None, rows=None):
-        self.edge, self.t, self.v_from, self.v_to = edge, t, float(v_from), float(v_to)
+    def __init__(self, edge: str, solve: TreeSolve, v_from: float, v_to: float, *,
+                 rows=None):
+        self.edge, self.t, self.v_from, self.v_to = edge, solve.t, float(v_from), float(v_to)
         # the solve's rows: ``rows[node]`` is a node's row (a solve shared by drivers that
-        # see the same tree, in its own node order; None: the node's own); ``unit`` the
-        # unit response at every row, or the :class:`TreeSolve` that holds some of them
-        self._unit, self._settled, self._span, self._rows = unit, settled, span, rows
+        # see the same tree, in its own node order; None: the node's own)
+        self._solve, self._rows = solve, rows
         self._made: dict[int, EdgeWave] = {}
         self._extremes: tuple | None = None
 
@@ -164,12 +163,6 @@ class PointWaves:
             return node
         return self._rows[node] if np.ndim(node) == 0 else [self._rows[n] for n in node]
 
-    def _records(self, rows):
-        """The unit response of solve rows ``rows`` (an int or a list). [1]"""
-        if isinstance(self._unit, TreeSolve):
-            return self._unit.records(rows)
-        return self._unit[rows]
-
     def extremes(self) -> tuple[np.ndarray, np.ndarray]:
         """At every node at once: the peak (the high level plus the overshoot) and the dip
         (the undershoot below the low level, minus the low level), as
@@ -178,7 +171,7 @@ class PointWaves:
             # overshoot and undershoot read only the largest and smallest sample, and
             # v_from + (v_to - v_from) u is monotonic in u (so in its rounding too): the
             # edge at each node's smallest and largest u has the same two extremes
-            span = _span(self._unit) if self._span is None else self._span
+            span = self._solve.span
             if self._rows is not None:
                 span = span[self._rows]
             v = self.v_from + (self.v_to - self.v_from) * span
@@ -189,7 +182,8 @@ class PointWaves:
 
     def edge_times(self, nodes) -> np.ndarray:
         """The 10-90 % edge at the given nodes (NaN where it is not reached). [s]"""
-        v = self.v_from + (self.v_to - self.v_from) * self._records(self._row(list(nodes)))
+        v = self.v_from + (self.v_to - self.v_from) * self._solve.records(
+            self._row(list(nodes)))
         return np.asarray(wf.edge_time(self.t, v, self.v_to, v_initial=self.v_from),
                           dtype=float)
 
@@ -198,7 +192,7 @@ class PointWaves:
         got = self._made.get(node)
         if got is None:
             row = self._row(node)
-            record = self._records(row)
+            record = self._solve.records(row)
             v = self.v_from + (self.v_to - self.v_from) * record
             hi, lo = max(self.v_from, self.v_to), min(self.v_from, self.v_to)
             # its record made again from the unit response when read, the same way (a
@@ -207,7 +201,7 @@ class PointWaves:
                                float(wf.edge_time(self.t, v, self.v_to,
                                                   v_initial=self.v_from)),
                                float(wf.overshoot(v, hi)), float(wf.undershoot(v, lo)),
-                               bool(self._settled[row]), None)
+                               bool(self._solve.settled[row]), None)
             self._made[node] = got
         return got
 
@@ -273,8 +267,7 @@ def tree_edges(net: RouteNet, source: int, r_source: float, t_ramp: float,
         rows[order] = held.order
     wanted = range(len(order)) if keep is None else keep
     held.hold([int(n) if rows is None else int(rows[n]) for n in wanted])
-    return PointWaves(edge, held.t, held, held.settled, v_from, v_to, span=held.span,
-                      rows=rows)
+    return PointWaves(edge, held, v_from, v_to, rows=rows)
 
 
 class TreeSolve:
