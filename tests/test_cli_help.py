@@ -20,11 +20,13 @@ def _pages(parser, words=("pinlib",)):
                 yield from _pages(sub, words + (name,))
 
 
+# common practice, no source: the 80-column terminal, and one wider
 @pytest.mark.parametrize("columns", [80, 100])
 def test_every_help_page_fits_the_terminal(monkeypatch, columns):
     monkeypatch.setenv("COLUMNS", str(columns))
     pages = list(_pages(build_parser()))
-    assert len(pages) > 15   # pinlib, its commands and the parts actions
+    # derived from the parser: pinlib, its 10 commands and the 8 parts actions
+    assert len(pages) > 15
     long = [f"{' '.join(w)}: {ln!r}" for w, p in pages for ln in p.format_help().splitlines()
             if len(ln) > columns]
     assert not long, long
