@@ -91,3 +91,29 @@ def test_comparison_reports_structure_and_text():
                        ignore=["swaps/*/file"]) == []
     assert differences(nested, {"swaps": [{"file": "/a", "ref": "U5"}]},
                        ignore=["swaps/*/file"]) != []
+
+
+def test_differences_of_larger_numbers_are_held_to_the_scale_they_come_from():
+    """A corner gain and a relative change: the tolerance of the margins or the ratio
+    they are computed from (golden/compare.py, DERIVED), not of their own small size."""
+    check = {"margin": 0.82, "corner": [{"parameter": "p", "end": "+", "gain": 4.86e-6}]}
+    doc = {"output": {"corners": {"checks": [check]},
+                      "figures": [{"old": 3.0, "new": 3.0006, "change": 2.0e-4}]}}
+
+    def moved(gain=4.86e-6, change=2.0e-4, margin=0.82):
+        out = copy.deepcopy(doc)
+        c = out["output"]["corners"]["checks"][0]
+        c["margin"], c["corner"][0]["gain"] = margin, gain
+        out["output"]["figures"][0]["change"] = change
+        return out
+
+    # 2.2e-15 absolute (4.6e-10 of the gain): the rounding of margins of 0.82
+    assert differences(doc, moved(gain=4.86e-6 + 2.2e-15)) == []
+    assert differences(doc, moved(gain=4.86e-6 + 2.2e-15), derived=()) != []
+    # 1e-11 of the margin is beyond it
+    assert len(differences(doc, moved(gain=4.86e-6 + 0.82e-11))) == 1
+    # a change: the rounding of new / old passes, a moved ratio does not
+    assert differences(doc, moved(change=2.0e-4 + 3e-16)) == []
+    assert len(differences(doc, moved(change=2.0e-4 + 2e-12))) == 1
+    # the margin itself keeps the plain tolerance
+    assert len(differences(doc, moved(margin=0.82 * (1 + 1e-10)))) == 1
