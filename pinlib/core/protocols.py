@@ -10,7 +10,7 @@ engine module, and the dispatcher's import of it.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from pinlib.core.valueclass import value_class
 
 __all__ = [
     "OPEN_DRAIN",
@@ -31,7 +31,7 @@ OPEN_DRAIN = "open-drain"
 PUSH_PULL = "push-pull"
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Protocol:
     """One protocol.
 

@@ -24,13 +24,13 @@ from __future__ import annotations
 import functools
 import math
 import re
-from dataclasses import dataclass
 from decimal import Decimal
 
 import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import UnitError
+from pinlib.core.valueclass import value_class
 
 __all__ = [
     "UNITS",
@@ -251,7 +251,7 @@ def parse_ratio(text: object, *, field: str | None = None) -> float:
     return parse(text, "%", field=field)
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Threshold:
     """A voltage that may be relative to a part's own supply: ``scale·VDD + offset``.
 

@@ -13,11 +13,12 @@ revisit.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import field
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.quantity import format_si
+from pinlib.core.valueclass import value_class
 from pinlib.engines.opendrain import SIGNALS, capacitance_from_rise, collect
 from pinlib.model.design import Design
 
@@ -39,7 +40,7 @@ _REVISIT = {
 }
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class BenchComparison:
     """A measured rise time turned into Cb and set against the model.
 

@@ -26,12 +26,13 @@ from __future__ import annotations
 
 import math
 import warnings
-from dataclasses import dataclass, field
+from dataclasses import field
 
 import numpy as np
 
 from pinlib.core.errors import ValidityWarning
 from pinlib.core.quantity import format_si
+from pinlib.core.valueclass import value_class
 from pinlib.engines.crosstalk import (
     Victim,
     coupling_checks,
@@ -55,7 +56,7 @@ SEARCH_REL = 0.02
 LENGTH_SEARCH_MAX = 1.0
 
 
-@dataclass
+@value_class
 class CouplingWorkings:
     """What the engine worked out for one coupling (charts read it).
 

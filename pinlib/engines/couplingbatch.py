@@ -14,10 +14,9 @@ engine's result.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 import numpy as np
 
+from pinlib.core.valueclass import value_class
 from pinlib.engines.coupling import pair_at
 from pinlib.engines.crosstalk import noise_batch
 from pinlib.engines.opendrain.batch import BatchCheck
@@ -49,7 +48,7 @@ def _axis(tol: float, span: float, floor: float) -> np.ndarray:
     return np.linspace(max(1.0 - tol * span, floor), 1.0 + tol * span, POINTS)
 
 
-@dataclass
+@value_class
 class CouplingTable:
     """The noise at each (spacing factor, length factor) of the grid: ``levels`` and
     ``beyond`` map each ``(held, end)`` to an array of shape (len(fs), len(fl))."""
@@ -91,7 +90,7 @@ def _cell(axis: np.ndarray, x: np.ndarray):
     return i, (x - axis[i]) / (axis[i + 1] - axis[i])
 
 
-@dataclass
+@value_class
 class CouplingBatch:
     """Every check of a coupling over ``n`` boards, in the nominal result's order
     (``items``: :class:`~pinlib.engines.opendrain.batch.BatchCheck`, arrays of (n,))."""

@@ -24,13 +24,13 @@ Checks at each end of the victim, for a held-low and a held-high line:
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.quantity import format_si
+from pinlib.core.valueclass import value_class
 from pinlib.core.worklimits import MAX_COUPLED_STEPS
 from pinlib.model.design.coupling import Aggressor
 from pinlib.model.result import Check, check_max, check_min
@@ -46,7 +46,7 @@ _ENDS = ("near", "far")
 _STEPS_PER_EDGE = 50  # time steps over the aggressor's ramp (common practice, no source)
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Victim:
     """The open-drain line: supply and pull-up (at ``pullup_end``), the sink that holds it
     low (at ``sink_end``), the receivers' capacitance and thresholds at each end
@@ -68,7 +68,7 @@ class Victim:
     source_vih: str = ""       # VIH's source where it differs from ``source_levels``
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class EndNoise:
     """The victim's worst excursion at one end in one held state: the level reached [V]
     and how long it stays beyond the threshold [s] (0 if it does not cross; ``open``

@@ -19,12 +19,11 @@ tables (the model is one resistance per edge); the residual shows what that cost
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.quantity import format_si
+from pinlib.core.valueclass import value_class
 from pinlib.library.ibis import IbisFile, Model, Pin
 from pinlib.library.ibisimport import CornerEdges, OutputCorners
 from pinlib.physics import driver as drv
@@ -50,7 +49,7 @@ R_LOAD_DEFAULT = 50.0
 _COLUMN = {"typ": "typ", "min": "min", "max": "max"}
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class EdgeFit:
     """The driver model of one edge at one corner, and how it was found.
 

@@ -12,13 +12,12 @@ budget the I2C-bus value of the same speed is taken, and the result says so.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError
 from pinlib.core.quantity import Threshold
+from pinlib.core.valueclass import value_class
 from pinlib.library.values import Sourced
 from pinlib.physics.rc import RISE_30_70
 from pinlib.standards import i2c as i2c_std
@@ -37,7 +36,7 @@ _LOWER = {"i2c": {"fast": "standard", "fast-plus": "fast"},
           "smbus": {"400k": "100k", "1m": "400k"}}
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class OpenDrainLimits:
     """Limits of one I2C mode or SMBus class, with the source of each.
 

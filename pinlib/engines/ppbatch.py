@@ -28,11 +28,12 @@ the bus (``Device.capacitance_factor``); the stored part is not changed.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import field
 from typing import Any
 
 import numpy as np
 
+from pinlib.core.valueclass import value_class
 from pinlib.engines import pptable
 from pinlib.engines import pushpull as pp
 from pinlib.engines.opendrain.batch import BatchCheck
@@ -71,7 +72,7 @@ WHY = {"outside": "outside the tolerance box",
        "close": "close to failing"}
 
 
-@dataclass
+@value_class
 class PpBatch:
     """Every check of a push-pull bus over a batch of variants.
 

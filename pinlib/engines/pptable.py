@@ -50,11 +50,12 @@ from __future__ import annotations
 
 import itertools
 import math
-from dataclasses import dataclass, replace
 from dataclasses import field as _field
+from dataclasses import replace
 
 import numpy as np
 
+from pinlib.core.valueclass import value_class
 from pinlib.engines import ppnodes
 from pinlib.engines import ppvariant as ppv
 from pinlib.engines.opendrain.rules import supply_margin
@@ -77,7 +78,7 @@ VERIFY = 20
 NODES = {"length": 7, "capacitance": 5, "supply": 3}
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Refusal:
     """Why no table stands in for the engine on a bus: every board then goes to the
     engine (correct, only slower), and the run's notes say why."""
@@ -95,7 +96,7 @@ MAX_NODES = 400
 REFINE, ROUGH_TOL = 8, 2e-3
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Axis:
     """One axis of the table: the factor keys it sets and the span it covers.
 
@@ -138,7 +139,7 @@ def axes_of(specs: list[tuple], span: float, floor: float) -> list[Axis]:
     return out
 
 
-@dataclass
+@value_class
 class LineTable:
     """The engine's results over a bus's tolerance box.
 

@@ -13,13 +13,13 @@ from __future__ import annotations
 import functools
 import re
 import typing
-from dataclasses import dataclass
 
 from pinlib.core import messages as M
 from pinlib.core import nearby
 from pinlib.core.errors import LibraryError, PinlibError
 from pinlib.core.quantity import UNITS, Threshold
 from pinlib.core.records import Convert, Record
+from pinlib.core.valueclass import value_class
 from pinlib.library import schema
 from pinlib.library.values import Sourced
 
@@ -37,7 +37,7 @@ __all__ = [
 ]
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class ValueKind:
     """A field that holds a value: ``level`` (may follow VDD) or ``quantity``."""
 

@@ -28,12 +28,13 @@ the line and the keyword.
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass, field
+from dataclasses import field
 from pathlib import Path
 
 from pinlib.core import messages as M
 from pinlib.core.errors import LibraryError
 from pinlib.core.tomlfile import read_regular
+from pinlib.core.valueclass import value_class
 
 __all__ = ["SCALE", "MAX_BYTES", "TypMinMax", "Table", "Pin", "Component", "Ramp",
            "Waveform", "Model", "IbisFile", "parse_number", "parse_ibis", "read_ibis"]
@@ -61,7 +62,7 @@ _MODEL_PARAMS = ("model_type", "polarity", "enable", "vinl", "vinh", "vmeas", "c
                  "vref", "c_comp")
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class TypMinMax:
     """One quantity at the three corners (None where the file says NA)."""
 
@@ -70,7 +71,7 @@ class TypMinMax:
     max: float | None = None
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Table:
     """A table of rows ``x, typ, min, max`` (V-I or V-t), its keyword and first line."""
 
@@ -82,7 +83,7 @@ class Table:
     max: tuple[float | None, ...]
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Pin:
     name: str
     signal: str
@@ -93,7 +94,7 @@ class Pin:
     c_pin: float | None = None
 
 
-@dataclass
+@value_class
 class Component:
     name: str
     line: int
@@ -102,7 +103,7 @@ class Component:
     pins: list[Pin] = field(default_factory=list)
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Ramp:
     """``dV/dt`` as (dV, dt) pairs per corner, and the load they were taken into."""
 
@@ -112,7 +113,7 @@ class Ramp:
     line: int
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Waveform:
     """A V-t table into a stated fixture (``R_fixture``, ``V_fixture``, ``C_fixture``...)."""
 
@@ -121,7 +122,7 @@ class Waveform:
     table: Table
 
 
-@dataclass
+@value_class
 class Model:
     name: str
     line: int
@@ -155,7 +156,7 @@ class Model:
                          less(up.max, down.max))
 
 
-@dataclass
+@value_class
 class IbisFile:
     path: str
     header: dict[str, str]
@@ -214,7 +215,7 @@ class _Where:
 
 
 # ---------------------------------------------------------------- sections
-@dataclass
+@value_class
 class _Section:
     keyword: str          # normalised: lower case, '_' as ' '
     name: str             # as written

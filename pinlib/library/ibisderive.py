@@ -22,10 +22,9 @@ table between two of its rows, or the slope of a table's rows:
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 from pinlib.core import messages as M
 from pinlib.core.errors import LibraryError
+from pinlib.core.valueclass import value_class
 from pinlib.library.ibis import Component, IbisFile, Model, Pin, Table
 
 __all__ = ["NEAR_RAIL", "Derived", "derive_pin", "c_in", "thresholds", "sink_v_ol", "r_out"]
@@ -36,7 +35,7 @@ NEAR_RAIL = 0.2
 _CORNERS = ("typ", "min", "max")
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Derived:
     """One value for a part file: SI value, unit, typical value, source and method."""
 

@@ -12,13 +12,13 @@ from __future__ import annotations
 
 import datetime as _dt
 from collections.abc import Callable
-from dataclasses import dataclass
 from pathlib import Path
 
 from pinlib.core import messages as M
 from pinlib.core.errors import LibraryError
 from pinlib.core.protocols import PIN_FUNCTIONS, PROTOCOLS
 from pinlib.core.quantity import format_si
+from pinlib.core.valueclass import value_class
 from pinlib.library import loader
 from pinlib.library.ibis import IbisFile
 from pinlib.library.ibisderive import Derived, _model_of, derive_pin
@@ -41,7 +41,7 @@ OPEN_DRAIN_FUNCTIONS = tuple(fn for p in PROTOCOLS.values() if p.open_drain
 _ORDER = ("c_in", "v_il", "v_ih", "v_ol", "i_ol", "r_out")
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class CornerEdges:
     """One corner of an output as edge points: rows of ``{"load", "rise", "rise_typ",
     "fall", "fall_typ"}`` (SI) and the source of each edge's values."""
@@ -50,7 +50,7 @@ class CornerEdges:
     sources: dict[str, str]
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class OutputCorners:
     """A push-pull output's slow corner (the pin's ``edges``) and fast corner (its
     ``fast.edges``, None when the file gives none), and the fit's warnings."""

@@ -15,7 +15,7 @@ from __future__ import annotations
 
 import os
 from collections.abc import Iterable, Iterator, Mapping
-from dataclasses import dataclass, field
+from dataclasses import field
 from pathlib import Path
 
 from pinlib.core import messages as M
@@ -24,6 +24,7 @@ from pinlib.core.errors import LibraryError, PinlibError
 from pinlib.core.records import Record, RecordError
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_index, line_of, load
+from pinlib.core.valueclass import value_class
 from pinlib.library.schema import FORMAT, Part
 from pinlib.library.values import Sourced
 from pinlib.library.walk import (  # noqa: F401 - the walk's names, as before
@@ -59,7 +60,7 @@ MAX_PART_BYTES = 2**20
 MAX_EXTENDS_DEPTH = 32
 
 
-@dataclass
+@value_class
 class PartFile:
     """One part file as read: its raw table, text and line index."""
 
@@ -298,7 +299,7 @@ class LazyParts(Mapping):
         return len(self._done)
 
 
-@dataclass
+@value_class
 class Library:
     """The merged library: validated parts by id, where each came from, and any problems."""
 

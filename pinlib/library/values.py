@@ -10,12 +10,12 @@ and which part file it was set in (for values inherited through ``extends``).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import Any
 
 from pinlib.core import messages as M
 from pinlib.core.errors import UnitError
 from pinlib.core.quantity import Threshold, format_si, parse, parse_threshold
+from pinlib.core.valueclass import value_class
 
 __all__ = ["BASES", "Sourced", "sourced_parser", "threshold_parser"]
 
@@ -26,7 +26,7 @@ BASES = ("generic", "datasheet", "measured", "estimate", "ibis", "derived")
 _TABLE_KEYS = {"value", "basis", "source", "typ"}
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Sourced:
     """An SI value with its provenance.
 

@@ -10,8 +10,10 @@ margin is under the design's warning threshold is a warning.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import field
 from typing import Any
+
+from pinlib.core.valueclass import value_class
 
 __all__ = [
     "json_number",
@@ -57,7 +59,7 @@ def worst(statuses) -> str:
     return out
 
 
-@dataclass
+@value_class
 class Figure:
     """A computed value and its unit."""
 
@@ -72,7 +74,7 @@ class Figure:
         return {"value": v if math.isfinite(v) else None, "unit": self.unit}
 
 
-@dataclass
+@value_class
 class Check:
     """One comparison of a value with a limit from a named source."""
 
@@ -238,7 +240,7 @@ def check_true(id, ok, source, message, **kw) -> Check:
     return Check(id, "pass" if ok else "fail", bool(ok), True, "", None, source, message, **kw)
 
 
-@dataclass
+@value_class
 class Group:
     """Figures, checks and notes of one line, segment or bus."""
 
@@ -270,7 +272,7 @@ class Group:
         return out
 
 
-@dataclass
+@value_class
 class LineResult(Group):
     """The figures and checks of one line (signal) of a bus."""
 
@@ -284,7 +286,7 @@ class LineResult(Group):
         return {"signal": self.signal, "status": self.status, **self._json_body()}
 
 
-@dataclass
+@value_class
 class SegmentResult(Group):
     """The figures and checks of one segment of an open-drain bus."""
 
@@ -298,7 +300,7 @@ class SegmentResult(Group):
         return {"id": self.id, "status": self.status, **self._json_body()}
 
 
-@dataclass
+@value_class
 class BusResult(Group):
     """The result of one bus.
 
@@ -340,7 +342,7 @@ class BusResult(Group):
         return out
 
 
-@dataclass
+@value_class
 class CouplingResult(Group):
     """The result of one ``[[coupling]]`` of the design: a fast line beside an open-drain
     one.  It has the shape of a bus's result with no segments or lines (``id``, figures,
@@ -380,7 +382,7 @@ class CouplingResult(Group):
                 "status": self.status, **self._json_body()}
 
 
-@dataclass
+@value_class
 class DesignResult:
     """The result of a design: its buses' and couplings' results, in file order."""
 

@@ -12,10 +12,10 @@ the file says so beside each one, and it loads and checks as it is.
 from __future__ import annotations
 
 import json
-from dataclasses import dataclass
 
 from pinlib.core import protocols
 from pinlib.core.quantity import format_si
+from pinlib.core.valueclass import value_class
 
 __all__ = ["Placement", "starter_text", "STARTER_GEOMETRY"]
 
@@ -25,7 +25,7 @@ STARTER_GEOMETRY = {"kind": "microstrip", "width": "0.2 mm", "height": "0.18 mm"
                     "thickness": "35 µm", "er": 4.2}
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Placement:
     """One part placed on the board: its reference designator and part id."""
 

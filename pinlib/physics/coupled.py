@@ -52,12 +52,12 @@ from __future__ import annotations
 
 import math
 import warnings
-from dataclasses import dataclass
 
 import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, ValidityWarning
+from pinlib.core.valueclass import value_class
 from pinlib.physics.guards import non_negative, positive
 from pinlib.physics.lines.microstrip_models import _hj_er_eff0, _hj_z01
 from pinlib.physics.lines.model import C0, ETA0, _out
@@ -94,7 +94,7 @@ COUPLED_VALIDITY: dict[str, tuple[ValidityRange, ...]] = {
 _METHOD = {"coupled microstrip": "kirschning-jansen", "coupled stripline": "cohn"}
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class CoupledLine:
     """A symmetric pair of coupled lines, per unit length.
 
@@ -302,7 +302,7 @@ def coupled_stripline(w, b, er, s, t=0.0) -> CoupledLine:
 # --------------------------------------------------------------------------- crosstalk
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Crosstalk:
     """Peak coupled noise at the two ends of the victim, both ends matched.
 

@@ -37,13 +37,13 @@ The start is the DC state of the terminations (the line carries their DC current
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 from typing import NamedTuple
 
 import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.core.valueclass import value_class
 from pinlib.physics.coupled import CoupledLine
 from pinlib.physics.coupledblocks import _BLOCK, _CLOSED_RUN, _T, _in_blocks, _in_closed_runs
 from pinlib.physics.guards import positive
@@ -63,7 +63,7 @@ _BLOCK_ROWS = 16
 _FEW_ROWS = 4
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class EndLoads:
     """The terminations of both conductors at one end of the pair.
 
@@ -82,7 +82,7 @@ class EndLoads:
     v: object = (0.0, 0.0)
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class PairWaves:
     """Voltages at the ends of the pair, each of shape (2, nt): row 0 the aggressor,
     row 1 the victim. ``near`` is the end of :class:`EndLoads` ``near``. [V]"""

@@ -14,13 +14,14 @@ every field (:meth:`I2cMode.source_of`).  A field that the table leaves blank
 
 from __future__ import annotations
 
-from dataclasses import dataclass, fields
+from dataclasses import fields
 from types import MappingProxyType
 
 import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.core.valueclass import value_class
 from pinlib.standards.lookup import by_name
 
 __all__ = [
@@ -83,7 +84,7 @@ def _out(arr: np.ndarray):
     return arr[()] if np.ndim(arr) == 0 else arr
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class I2cMode:
     """Published limits of one I2C-bus speed mode.
 
@@ -538,7 +539,7 @@ def sink_spec(mode, vdd):
     return _out(v_ol), _out(i_ol), source
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class OutputFall:
     """What Table 9 guarantees of a compliant output stage's fall: at most ``t_max``
     from VIH,min to VIL,max (0.7·VDD to 0.3·VDD, the bus's own measuring levels) while

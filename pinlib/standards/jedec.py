@@ -14,13 +14,13 @@ magnitudes; for VOH the current flows out of the pin (JEDEC writes IOH < 0).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from types import MappingProxyType
 
 import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.core.valueclass import value_class
 from pinlib.standards.lookup import by_name
 
 __all__ = [
@@ -52,7 +52,7 @@ def _check_vdd(vdd) -> np.ndarray:
     return arr
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Level:
     """A voltage level written as offset + per_vdd · VDD.
 
@@ -98,7 +98,7 @@ class Level:
         return f"{scale} {sign} {abs(self.offset):g} V"
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class OutputDrive:
     """Output levels guaranteed at one load current.
 
@@ -123,7 +123,7 @@ class OutputDrive:
     from_memory: bool
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class LogicLevels:
     """A JEDEC interface level set for one supply.
 

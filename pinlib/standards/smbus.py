@@ -17,13 +17,14 @@ All values are SI (s, Hz, F, V, A, Ω).  A field the table leaves blank is
 
 from __future__ import annotations
 
-from dataclasses import dataclass, fields
+from dataclasses import fields
 from types import MappingProxyType
 
 import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.core.valueclass import value_class
 from pinlib.standards.lookup import by_name
 
 __all__ = [
@@ -55,7 +56,7 @@ _DC_FIELDS = frozenset(
 )  # fmt: skip
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class SmbusClass:
     """Published limits of one SMBus speed class (timing and high-power DC levels).
 
@@ -177,7 +178,7 @@ class SmbusClass:
         return self.source_dc if field in _DC_FIELDS else self.source_ac
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class SmbusLowPower:
     """Published low-power DC levels of SMBus (Table 3).
 

@@ -29,7 +29,7 @@ from __future__ import annotations
 
 import math
 import textwrap
-from dataclasses import dataclass, field
+from dataclasses import field
 
 import numpy as np
 
@@ -40,6 +40,7 @@ from pinlib.core.progress import progress_bar
 from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS
 from pinlib.core.quantity import format_si
 from pinlib.core.texttable import fit_table
+from pinlib.core.valueclass import value_class
 from pinlib.engines import opendrain as od
 from pinlib.engines.opendrain import batch as ob
 from pinlib.library.schema import CATEGORIES, Part
@@ -85,7 +86,7 @@ def _ranks(check_id: str, dev) -> bool:
     return dev.is_bridge or check_id not in FIXED_CHECKS
 
 
-@dataclass
+@value_class
 class Candidate:
     """One part evaluated in the position.
 
@@ -143,7 +144,7 @@ class Candidate:
 
 
 
-@dataclass
+@value_class
 class Ranking:
     """Every candidate of a position, best first."""
 

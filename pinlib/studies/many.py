@@ -10,11 +10,12 @@ the workers finish in.
 from __future__ import annotations
 
 import os
-from dataclasses import dataclass, field
+from dataclasses import field
 from pathlib import Path
 
 from pinlib.core.errors import PinlibError
 from pinlib.core.progress import progress_bar
+from pinlib.core.valueclass import value_class
 from pinlib.studies.designpaths import expand_designs
 
 __all__ = ["DesignSummary", "SwapSummary", "check_one", "check_many", "default_jobs",
@@ -22,7 +23,7 @@ __all__ = ["DesignSummary", "SwapSummary", "check_one", "check_many", "default_j
            "is_design_file"]
 
 
-@dataclass
+@value_class
 class DesignSummary:
     """What one design's check came to.
 
@@ -232,7 +233,7 @@ def is_design_file(path) -> bool:
     return "pinlib.design/1" in head
 
 
-@dataclass
+@value_class
 class SwapSummary:
     """One design under a substitution of part ids (``{old: new}``) at every position.
 

@@ -11,12 +11,12 @@ Rp(max) and the ``auto`` rule's margins are those of :mod:`.inputs`.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 from typing import Any, NamedTuple
 
 import numpy as np
 
 from pinlib.core.quantity import Threshold
+from pinlib.core.valueclass import value_class
 from pinlib.engines.limits import OpenDrainLimits
 from pinlib.engines.opendrain.inputs import _offset_side
 from pinlib.engines.opendrain.rules import (
@@ -66,7 +66,7 @@ class Level(NamedTuple):
         return cls(0.0, float(v))
 
 
-@dataclass
+@value_class
 class PinData:
     """One pin as the engine reads it, defaults filled in, values over the batch.
 
@@ -93,7 +93,7 @@ class PinData:
     t_of_max: Any | None   # [s]
 
 
-@dataclass
+@value_class
 class TimingData:
     """A part's timing and supply range as the engine reads them, over the batch."""
 
@@ -298,7 +298,7 @@ class WorstCase(Scenario):
 # ============================================================================ batch inputs
 
 
-@dataclass
+@value_class
 class _Tap:
     """A device's pin on a line, with its values over the batch."""
 
@@ -321,7 +321,7 @@ class _Tap:
         return f"{self.dev.ref} side {self.dev.side}" if self.dev.side else self.dev.ref
 
 
-@dataclass
+@value_class
 class _Driver:
     """A pin that pulls a line low, its values over the batch."""
 
@@ -333,7 +333,7 @@ class _Driver:
     offset: Any = None
 
 
-@dataclass
+@value_class
 class _Receiver:
     """A pin that reads a line, its thresholds over the batch."""
 
@@ -342,7 +342,7 @@ class _Receiver:
     v_ih: Any
 
 
-@dataclass
+@value_class
 class _Line:
     """One line of a segment over the batch: its pins, capacitance, leakage and the
     pull-up range they allow."""
@@ -361,7 +361,7 @@ class _Line:
     r_eff: tuple | None = None  # (pullup, every pull-up in parallel) once worked out
 
 
-@dataclass
+@value_class
 class _Seg:
     """One segment over the batch: its rail and its lines."""
 

@@ -7,17 +7,18 @@ from, and what each row is, so that its wording can name them).
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import field
 from typing import Any
 
 import numpy as np
 
+from pinlib.core.valueclass import value_class
 from pinlib.model.result import STATUSES, status_codes
 
 #: Status codes of :attr:`BatchCheck.status`, in order of severity (the index of each).
 STATUS = STATUSES
 
-@dataclass
+@value_class
 class BatchCheck:
     """One check of the engine, for every variant of the batch.
 
@@ -96,7 +97,7 @@ class BatchCheck:
         return f"{self.id} {self.signal}" if self.signal else self.id
 
 
-@dataclass
+@value_class
 class SegmentBatch:
     """The checks and figures of one segment over a batch."""
 
@@ -105,7 +106,7 @@ class SegmentBatch:
     figures: dict = field(default_factory=dict)
 
 
-@dataclass
+@value_class
 class BusBatch:
     """The checks of one open-drain bus over a batch, segment by segment (in the
     engine's order within each)."""

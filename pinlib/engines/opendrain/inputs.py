@@ -13,7 +13,7 @@ from __future__ import annotations
 import math
 import os
 import warnings
-from dataclasses import dataclass, field
+from dataclasses import field
 
 import numpy as np
 
@@ -21,6 +21,7 @@ from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, ValidityWarning
 from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS
 from pinlib.core.quantity import format_si
+from pinlib.core.valueclass import value_class
 from pinlib.engines.limits import OpenDrainLimits, limits_for
 from pinlib.engines.opendrain.rules import (
     SIGNALS,
@@ -48,7 +49,7 @@ def _f(x, unit):
 # ============================================================================ inputs
 
 
-@dataclass
+@value_class
 class _Tap:
     """One device pin on one line."""
 
@@ -94,7 +95,7 @@ def value_source(dev: Device, path: str, value) -> str:
     return f"{where} ({': '.join(bits)})" if bits else where
 
 
-@dataclass
+@value_class
 class _Driver:
     """A pin that pulls a line low, with its guaranteed low level per corner."""
 
@@ -107,7 +108,7 @@ class _Driver:
     offset: float | None = None   # static low-offset level of a repeater side [V]
 
 
-@dataclass
+@value_class
 class _Receiver:
     """A pin that reads a line, with its input thresholds per corner."""
 
@@ -117,7 +118,7 @@ class _Receiver:
     source: str
 
 
-@dataclass
+@value_class
 class LineInputs:
     """What one line of one segment is made of (pass 1 of the engine).
 
@@ -159,7 +160,7 @@ class LineInputs:
     own: tuple | None = None
 
 
-@dataclass
+@value_class
 class SegmentInputs:
     """One segment after pass 1: its lines, rail corners and pull-up.
 

@@ -12,12 +12,12 @@ from __future__ import annotations
 
 import math
 from collections import deque
-from dataclasses import dataclass
 
 import numpy as np
 
 from pinlib.core import eseries
 from pinlib.core.protocols import protocol
+from pinlib.core.valueclass import value_class
 from pinlib.engines.limits import OpenDrainLimits
 from pinlib.library.schema import Pin
 from pinlib.model.design import Bus, Device, Segment
@@ -171,7 +171,7 @@ def coupled_sinks(v_max, drivers, far, segs, signal: str, top):
                                 link.r_on), d, link)
 
 
-@dataclass
+@value_class
 class _Link:
     """A bridging part seen from one segment."""
 

@@ -6,12 +6,13 @@ from __future__ import annotations
 import math
 import warnings
 from collections.abc import Sequence
-from dataclasses import dataclass, field
+from dataclasses import field
 from typing import TYPE_CHECKING
 
 import numpy as np
 
 from pinlib.core.quantity import format_si
+from pinlib.core.valueclass import value_class
 from pinlib.engines.pushline.drive import DriveCase, drive_case, route_case
 from pinlib.engines.pushline.pins import Endpoint
 from pinlib.model.design import Line
@@ -21,7 +22,7 @@ if TYPE_CHECKING:  # a routed line's tree: imported by the line that has one
     from pinlib.engines.pushline.routes import RouteNet
 
 
-@dataclass
+@value_class
 class LineAnalysis:
     """Everything the engine worked out for one line.
 

@@ -17,10 +17,9 @@ computed by the engine as before.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 import numpy as np
 
+from pinlib.core.valueclass import value_class
 from pinlib.engines import memo
 from pinlib.engines.pushline.waves import crossing_key, figures_key, recrossings_key
 from pinlib.physics import waveform as wf
@@ -31,7 +30,7 @@ __all__ = ["EdgeUse", "store_figures"]
 MAX_ELEMENTS = 2_000_000
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class EdgeUse:
     """One way an analysis will read a unit edge: the edge's levels and direction, the
     levels whose first crossing it asks for and the (VIL, VIH) pairs whose re-crossings

@@ -5,10 +5,10 @@ from __future__ import annotations
 
 import warnings
 from collections.abc import Sequence
-from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 from pinlib.core.errors import PinlibError
+from pinlib.core.valueclass import value_class
 from pinlib.engines import memo
 from pinlib.engines.pushline.pins import Endpoint, Flight
 from pinlib.engines.pushline.rules import _REF_LEVEL
@@ -23,7 +23,7 @@ if TYPE_CHECKING:  # a routed line's tree: imported by route_case
     from pinlib.engines.pushline.routes import RouteNet
 
 
-@dataclass
+@value_class
 class DriveCase:
     """One driver on a line, with one series resistor: both edges at the far end.
 
@@ -269,7 +269,7 @@ def _ref_time(t_ramp: float, tau: float) -> float:
         rc.ramp_rc_crossing(_REF_LEVEL, t_ramp, tau)))
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class EdgePlan:
     """What :func:`drive_case` solves: each edge as ``(r_source, t_ramp, c_far, v_from,
     v_to)`` (the arguments of :func:`simulate_edge` after the sections), whether the

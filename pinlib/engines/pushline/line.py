@@ -4,10 +4,10 @@ from __future__ import annotations
 
 import warnings
 from collections.abc import Sequence
-from dataclasses import dataclass
 
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError
+from pinlib.core.valueclass import value_class
 from pinlib.engines import memo
 from pinlib.engines.pushline.analysis import LineAnalysis, _figures_of, _fmt, _others
 from pinlib.engines.pushline.drive import _driver_model, _open_drain_model, _pullups
@@ -28,7 +28,7 @@ from pinlib.model.result import Check, LineResult, check_max, rule_of_thumb
 from pinlib.physics import driver as drv
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class LineInputs:
     """The arguments of one :func:`analyse_line` call, gathered before it is made (a
     batched study reads every variant's first, :mod:`pinlib.engines.pushline.batchsolve`)."""

@@ -3,13 +3,12 @@ bridges, and a flight time (:class:`Flight`)."""
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
+from pinlib.core.valueclass import value_class
 from pinlib.library.schema import Pin
 from pinlib.model.design import Bus, Device
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Endpoint:
     """One pin of one device on a line, at that device's supply.
 
@@ -70,7 +69,7 @@ class Endpoint:
         return f"{origin} {name}: {text}"
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Flight:
     """Earliest and latest flight of an edge (or a set of edges) to one input.
 

@@ -12,10 +12,10 @@ from __future__ import annotations
 
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass
 
 import numpy as np
 
+from pinlib.core.valueclass import value_class
 from pinlib.engines import memo
 from pinlib.engines.pushline.rules import (
     _MAX_STEPS,
@@ -46,7 +46,7 @@ _ROUTE_EXTENSIONS = 0
 _ROUTE_SETTLE_TAUS = 6.0
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class RouteNet:
     """The nodes and sections of a routed line.
 

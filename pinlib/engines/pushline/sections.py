@@ -5,8 +5,8 @@ from __future__ import annotations
 
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass
 
+from pinlib.core.valueclass import value_class
 from pinlib.engines.pushline.rules import (
     LONG_LINE_FRACTION,
     LUMPED_INDUCTANCE_LIMIT,
@@ -15,7 +15,7 @@ from pinlib.model.design import Section
 from pinlib.physics import lines as tl
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Stretch:
     """Electrical data of one section of a line.
 

@@ -6,13 +6,13 @@ import functools
 import math
 import warnings
 from collections.abc import Sequence
-from dataclasses import dataclass
 
 import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.quantity import format_si
+from pinlib.core.valueclass import value_class
 from pinlib.engines import memo
 from pinlib.engines.pushline.rules import (
     _MAX_EXTENSIONS,
@@ -26,7 +26,7 @@ from pinlib.engines.pushline.sections import Stretch
 from pinlib.physics import waveform as wf
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class EdgeWave:
     """One edge at the far end of a line.
 
@@ -212,7 +212,7 @@ def unit_edge_key(stretches: Sequence[Stretch], r_source: float, t_ramp: float,
             r_source, t_ramp, c_far, bool(distributed))
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class EdgeGrid:
     """The time grid of one unit edge and the circuit solved on it.
 

@@ -4,12 +4,12 @@
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError
+from pinlib.core.valueclass import value_class
 from pinlib.engines.pushline import (
     EDGE_FRACTION,
     SIGNAL_FUNCTION,
@@ -29,7 +29,7 @@ from pinlib.engines.spi.modes import (
 from pinlib.model.design import Bus, Design, Device
 
 
-@dataclass
+@value_class
 class SpiAnalysis:
     """The lines and timing of one SPI bus.
 

@@ -3,17 +3,18 @@
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import field
 
 import numpy as np
 
+from pinlib.core.valueclass import value_class
 from pinlib.engines.pushline import (
     Flight,
 )
 from pinlib.engines.spi.modes import SpiMode
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class PeripheralTiming:
     """What the budget needs of one peripheral.
 
@@ -49,7 +50,7 @@ class PeripheralTiming:
     sources: dict = field(default_factory=dict)
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class ControllerTiming:
     """What the budget needs of the controller.
 
@@ -78,7 +79,7 @@ class ControllerTiming:
     sources: dict = field(default_factory=dict)
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Term:
     """One timing requirement as ``available(T) = a T + b >= required``.
 

@@ -3,7 +3,6 @@ the validated file."""
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from pathlib import Path
 
 from pinlib.core import messages as M
@@ -11,6 +10,7 @@ from pinlib.core import protocols
 from pinlib.core.errors import DesignError
 from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import line_index
+from pinlib.core.valueclass import value_class
 from pinlib.library.loader import Library
 from pinlib.model.design.buses import _one_part_per_reference, _open_drain_bus, _push_pull_bus
 from pinlib.model.design.coupling import Coupling, resolve_couplings
@@ -19,7 +19,7 @@ from pinlib.model.design.raw import MODES, RawBus, RawDesign
 from pinlib.model.design.resolve import _geometries, _Resolver
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Design:
     """A design read and resolved: its buses, geometries and couplings, the library its
     parts come from, and the file it was read from (path and text)."""

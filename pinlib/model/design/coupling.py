@@ -11,17 +11,16 @@ design has.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 from pinlib.core import messages as M
 from pinlib.core import nearby, protocols
+from pinlib.core.valueclass import value_class
 from pinlib.model.design.objects import Bus, Geometry
 from pinlib.model.design.raw import RawCoupling, RawEdge, RawGeometry
 
 __all__ = ["Aggressor", "Coupling", "resolve_couplings"]
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Aggressor:
     """An aggressor's edge, as a coupling describes it and as the crosstalk solver
     (:mod:`pinlib.engines.crosstalk`) takes it.
@@ -46,7 +45,7 @@ class Aggressor:
     c_far: float = 0.0
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Coupling:
     """One parallel run of a victim and an aggressor.
 

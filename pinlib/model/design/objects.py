@@ -3,12 +3,13 @@ devices, segments, lines and buses (plain dataclasses of SI floats)."""
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import field
 
+from pinlib.core.valueclass import value_class
 from pinlib.library.schema import Part
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Geometry:
     """A named trace geometry of the design: its kind, the trace's dimensions [m], the
     dielectric's relative permittivity ``er`` and the model ``method`` when one is named."""
@@ -23,7 +24,7 @@ class Geometry:
     method: str | None = None
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Section:
     """A stretch of a line: a board trace of a named geometry, per-length values given
     directly, or a cable class from the library."""
@@ -36,7 +37,7 @@ class Section:
     part_id: str | None = None
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Cable:
     """A cable class from the library on a segment, and its length [m]."""
 
@@ -45,7 +46,7 @@ class Cable:
     length: float
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Device:
     """A part placed on a bus: its reference designator, the part, its role and what
     the design sets for it there (own rail, series resistor, side of a bridging part,
@@ -74,7 +75,7 @@ class Device:
         return bool(self.part.sides)
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Segment:
     """A stretch of open-drain bus with one supply and one pull-up per line."""
 
@@ -93,7 +94,7 @@ class Segment:
     loc: tuple = ()
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Line:
     """One routed push-pull signal."""
 
@@ -112,7 +113,7 @@ class Line:
         return sum(s.length for s in self.sections)
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Bus:
     """A bus of the design: protocol, mode, clock and rail; its segments (open-drain)
     or lines (push-pull), and every device on it."""

@@ -14,12 +14,12 @@ two values from a 20-80 % slew into a resistor (an IBIS ``[Ramp]``).
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.core.valueclass import value_class
 from pinlib.physics import rc
 from pinlib.physics.driver.solver import _lm
 
@@ -38,7 +38,7 @@ _R_STARTS = (3.0, 10.0, 30.0, 100.0, 300.0)
 _T_STARTS = (0.1, 0.6, 1.2)
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class FixtureWave:
     """One waveform of an edge into its fixture.
 
@@ -61,7 +61,7 @@ class FixtureWave:
     c_load: float
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class FixtureFit:
     """The driver model fitted to the waveforms of one edge.
 

@@ -9,12 +9,13 @@ of an edge.  The input checks here serve the whole :mod:`pinlib.physics.driver` 
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import field
 
 import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.core.valueclass import value_class
 from pinlib.physics import guards, rc
 
 __all__ = [
@@ -52,7 +53,7 @@ FIT_METHODS = ("fixed-r_out", "least-squares", "from-levels", "default")
 # --------------------------------------------------------------------------- results
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class DriverFit:
     """The driver parameters fitted to datasheet edge points.
 
@@ -86,7 +87,7 @@ class DriverFit:
     notes: tuple[str, ...] = ()
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Driver:
     """A push-pull output: rise and fall each a ramp behind an output resistance.
 

@@ -2,10 +2,11 @@
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
+from dataclasses import replace
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.core.valueclass import value_class
 from pinlib.physics.driver.fitting import _fmt, fit_driver
 from pinlib.physics.driver.model import (
     DEFAULT_R_OUT,
@@ -109,7 +110,7 @@ def driver_from_pin(pin, vdd, *, default_t_ramp=DEFAULT_T_RAMP):
     return slow if fast is None else replace(slow, fast=fast)
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class _CornerPin:
     """The fields of a pin that :func:`driver_from_pin` reads, for one output corner."""
 

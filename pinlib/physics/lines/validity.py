@@ -5,12 +5,12 @@ warning for inputs outside them, and :func:`line_methods`."""
 from __future__ import annotations
 
 import warnings
-from dataclasses import dataclass
 
 import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, ValidityWarning
+from pinlib.core.valueclass import value_class
 from pinlib.physics.lines.model import _as_float_array, _require, _wheeler_width
 
 __all__ = ["ValidityRange", "VALIDITY", "MICROSTRIP_METHODS", "STRIPLINE_METHODS",
@@ -31,7 +31,7 @@ _COHN_SOURCE = (
 )
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class ValidityRange:
     """The range of one dimensionless input in which a published model holds.
 

@@ -3,16 +3,16 @@
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.core.valueclass import value_class
 from pinlib.model.design import Bus, Design
 from pinlib.model.result import check_min
 from pinlib.present.plotdata.common import _require_protocol, workings
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class TimingBudgetData:
     """The SPI timing budget at the design's clock: one bar per requirement.
 

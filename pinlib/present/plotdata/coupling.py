@@ -4,12 +4,11 @@ drawn here while it searched for the minimum spacing; nothing is solved again.""
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.core.valueclass import value_class
 
 __all__ = ["NoiseSweep", "noise_vs_spacing_data", "NoiseWaves", "noise_waveform_data"]
 
@@ -29,7 +28,7 @@ def _excursion(noise: dict, vdd: float) -> float:
                for (held, _), n in noise.items())
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class NoiseSweep:
     """Peak noise against spacing at the design's parallel length.
 
@@ -62,7 +61,7 @@ def noise_vs_spacing_data(result) -> NoiseSweep:
                       _excursion(w.noise, v.vdd), w.minimum_spacing, w.coupling.length)
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class NoiseWaves:
     """The victim's voltage at each end, held low and held high, at the design point:
     ``t`` [s], ``traces`` label -> [V], the thresholds ``v_il``, ``v_ih`` and ``vdd``

@@ -3,11 +3,12 @@
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import field
 
 import numpy as np
 
 from pinlib.core.quantity import format_si
+from pinlib.core.valueclass import value_class
 from pinlib.model.design import Bus, Design
 from pinlib.physics import driver as drv
 from pinlib.present.plotdata.common import (
@@ -20,7 +21,7 @@ from pinlib.present.plotdata.common import (
 )
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class EdgeLoadData:
     """A driver's edge time against load, its datasheet points and its operating point.
 
@@ -72,7 +73,7 @@ class EdgeLoadData:
     subtitle: str = ""
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class WaveformData:
     """Far-end waveforms of one driver on one line, with the receivers' thresholds.
 

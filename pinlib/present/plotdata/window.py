@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 import numpy as np
 
@@ -11,12 +10,13 @@ from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS, protocol
 from pinlib.core.quantity import format_si
+from pinlib.core.valueclass import value_class
 from pinlib.model.design import Bus, Design
 from pinlib.physics import rc
 from pinlib.present.plotdata.common import _CB_POINTS, _require_protocol, workings
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class PullupWindowData:
     """The pull-up window of one line of one open-drain segment.
 

@@ -3,9 +3,10 @@ HTML or Markdown."""
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import field
 
 from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS, PUSH_PULL_PROTOCOLS
+from pinlib.core.valueclass import value_class
 from pinlib.model.result import DesignResult
 from pinlib.present.review.charts import _coupling_charts, _pullup_charts, _push_pull_charts
 from pinlib.present.review.draw import ReviewChart, _Keys
@@ -14,7 +15,7 @@ from pinlib.present.review.markdown import _Markdown
 from pinlib.present.review.montecarlo import _mc_charts
 
 
-@dataclass
+@value_class
 class Review:
     """Everything a report shows, with its charts rendered once.
 

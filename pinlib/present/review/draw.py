@@ -4,13 +4,13 @@ from __future__ import annotations
 
 import html
 import re
-from dataclasses import dataclass
 
 from pinlib.core.errors import PinlibError
 from pinlib.core.quantity import format_si
+from pinlib.core.valueclass import value_class
 
 
-@dataclass
+@value_class
 class ReviewChart:
     """One chart of a review.
 

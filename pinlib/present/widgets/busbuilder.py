@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import math
 import os
-from dataclasses import dataclass
 from pathlib import Path
 
 import ipywidgets as W
@@ -15,6 +14,7 @@ from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS, protocol
 from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import atomic_write, tomllib
+from pinlib.core.valueclass import value_class
 from pinlib.engines.dispatch import check_design
 from pinlib.library import load_library
 from pinlib.library.loader import Library
@@ -70,7 +70,7 @@ _OPEN_DRAIN_FUNCTIONS = tuple(dict.fromkeys(fn for name in OPEN_DRAIN_PROTOCOLS
 # =========================================================================== bus builder
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class BenchReading:
     """The bench panel's answer: a rise time measured on the board turned into Cb.
 

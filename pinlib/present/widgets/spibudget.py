@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import copy
-from dataclasses import dataclass
 
 import ipywidgets as W
 
@@ -11,6 +10,7 @@ from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import tomllib
+from pinlib.core.valueclass import value_class
 from pinlib.engines.dispatch import evaluate_bus
 from pinlib.model.design import Design, design_from_text, load_design
 from pinlib.model.result import BusResult
@@ -47,7 +47,7 @@ from pinlib.present.widgets.markup import (
 # =========================================================================== SPI budget
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class ClockLimit:
     """The highest clock one requirement allows on its own.
 

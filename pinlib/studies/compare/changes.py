@@ -5,12 +5,13 @@ design's saved one."""
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import field
 from typing import Any
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.quantity import Threshold, format_si, format_threshold
+from pinlib.core.valueclass import value_class
 from pinlib.studies.compare.figures import (
     DEFAULT_THRESHOLD,
     _checks,
@@ -28,7 +29,7 @@ CHANGES_FORMAT = "pinlib.changes/1"
 _ARROW = "→"
 
 
-@dataclass
+@value_class
 class StatusChange:
     """A check whose status changed (``old`` or ``new`` is None for a check that appeared
     or disappeared)."""
@@ -86,7 +87,7 @@ class StatusChange:
                 "old_subject": self.old_subject}
 
 
-@dataclass
+@value_class
 class FigureChange:
     """A figure that moved beyond the threshold, changed kind, appeared or disappeared."""
 
@@ -162,7 +163,7 @@ def _same_value(a: dict | None, b: dict | None) -> bool:
     return va == vb and a.get("unit") == b.get("unit")
 
 
-@dataclass
+@value_class
 class ValueChange:
     """One part value that differs between the two snapshots."""
 
@@ -193,7 +194,7 @@ class ValueChange:
         return {"key": self.key, "label": self.label, "old": self.old, "new": self.new}
 
 
-@dataclass
+@value_class
 class PartChange:
     """A device whose part changed, or whose part's resolved values differ."""
 
@@ -224,7 +225,7 @@ class PartChange:
                 "new_file": self.new_file, "values": [v.to_json() for v in self.values]}
 
 
-@dataclass
+@value_class
 class ChangeList:
     """What changed between two snapshots (see :func:`compare`)."""
 

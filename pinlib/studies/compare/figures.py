@@ -4,12 +4,12 @@ of each figure against a threshold, and figures and changes as text."""
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 from typing import Any
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.quantity import format_value, parse_ratio
+from pinlib.core.valueclass import value_class
 
 #: A figure that moves by more than this fraction of its old value is listed (5 %).
 DEFAULT_THRESHOLD = 0.05
@@ -97,7 +97,7 @@ def format_change(rel: float | None) -> str:
     return f"({rel * 100:+.3g} %)"
 
 
-@dataclass
+@value_class
 class FigureRow:
     """One figure before and after, for side-by-side tables."""
 

@@ -6,12 +6,13 @@ from __future__ import annotations
 
 import itertools
 import math
-from dataclasses import dataclass, field
+from dataclasses import field
 
 import numpy as np
 
 from pinlib.core.progress import progress_bar
 from pinlib.core.protocols import PUSH_PULL_PROTOCOLS
+from pinlib.core.valueclass import value_class
 from pinlib.engines import ppbatch as ppb
 from pinlib.engines import ppworst as ppw
 from pinlib.engines.memo import run_scope
@@ -34,7 +35,7 @@ from pinlib.studies.whatif.tolerances import (
 EXHAUSTIVE_LIMIT = 12
 
 
-@dataclass
+@value_class
 class CornerCheck:
     """The worst corner of one check.
 
@@ -78,7 +79,7 @@ class CornerCheck:
                 "worst_case_margin": json_number(self.nominal_margin)}
 
 
-@dataclass
+@value_class
 class CornersResult:
     design: str
     checks: list[CornerCheck]

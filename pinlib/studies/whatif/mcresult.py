@@ -4,10 +4,11 @@ and the run (:class:`McResult`), as JSON and as text."""
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import field
 
 import numpy as np
 
+from pinlib.core.valueclass import value_class
 from pinlib.model.result import json_number
 from pinlib.studies.whatif.tally import MarginHistogram
 from pinlib.studies.whatif.tolerances import Parameter
@@ -25,7 +26,7 @@ def find_check(checks, bus: str, check_id: str, signal: str | None = None,
     raise KeyError((bus, check_id, signal, segment))
 
 
-@dataclass
+@value_class
 class McCheck:
     """One check over the drawn boards.
 
@@ -119,7 +120,7 @@ class McCheck:
 
 
 
-@dataclass
+@value_class
 class McResult:
     """A Monte Carlo run over a design's tolerances (see :func:`monte_carlo`)."""
 

@@ -4,7 +4,6 @@
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 import numpy as np
 
@@ -12,6 +11,7 @@ from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS, PUSH_PULL_PROTOCOLS
 from pinlib.core.quantity import format_si
+from pinlib.core.valueclass import value_class
 from pinlib.engines import opendrain as od
 from pinlib.engines import ppbatch as ppb
 from pinlib.engines.opendrain import batch as ob
@@ -21,7 +21,7 @@ from pinlib.model.design import Bus, Design, Segment
 _FLOOR = 1e-6
 
 
-@dataclass(frozen=True)
+@value_class(frozen=True)
 class Parameter:
     """One toleranced quantity of a design.
 

@@ -3,11 +3,11 @@
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 from statistics import NormalDist
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.core.valueclass import value_class
 
 #: Confidence level of the pass-fraction intervals.
 CONFIDENCE = 0.95
@@ -62,7 +62,7 @@ def wilson_interval(passes: int, n: int, confidence: float = CONFIDENCE) -> tupl
     return max(0.0, centre - half), min(1.0, centre + half)
 
 
-@dataclass
+@value_class
 class Yield:
     """Boards that pass, of all drawn, with the Wilson interval."""
 
