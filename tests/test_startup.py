@@ -14,10 +14,14 @@ from pinlib.cli import startup
 
 @pytest.fixture(autouse=True)
 def _collector_back_on():
-    """``cli.entry`` turns the garbage collector off for a process that ends with it;
-    this test process goes on."""
+    """``cli.entry`` turns the garbage collector off and sets argparse's translations for
+    a process that ends with it; this test process goes on."""
+    import argparse
+
+    texts = argparse._, argparse.ngettext
     yield
     gc.enable()
+    argparse._, argparse.ngettext = texts
 
 
 def test_the_program_returns_mains_code_and_freezes_what_is_left(monkeypatch):
@@ -77,3 +81,37 @@ def test_with_numpy_loaded_the_thread_count_is_left_alone(monkeypatch):
     monkeypatch.setattr(startup, "_blas_set_here", False)
     startup.one_blas_thread()
     assert "OPENBLAS_NUM_THREADS" not in os.environ
+
+
+def test_argparse_texts_are_translated_as_gettext_would_with_one_lookup(monkeypatch):
+    """The command's process looks for argparse's catalogue once
+    (startup.one_catalogue_lookup); each text then reads as gettext gives it."""
+    import argparse
+    import gettext
+
+    monkeypatch.setattr(argparse, "_", argparse._)  # restored after the test
+    monkeypatch.setattr(argparse, "ngettext", argparse.ngettext)
+    looked = []
+    real_find = gettext.find
+    monkeypatch.setattr(gettext, "find", lambda *a, **k: looked.append(a) or real_find(*a, **k))
+    startup.one_catalogue_lookup()
+    assert len(looked) == 1
+    texts = ["usage: ", "positional arguments", "show this help message and exit",
+             "the following arguments are required: %s", "unrecognized arguments: %s"]
+    monkeypatch.setattr(gettext, "find", real_find)
+    assert [argparse._(t) for t in texts] == [gettext.gettext(t) for t in texts]
+    for n in (1, 2):
+        assert argparse.ngettext("expected %s argument", "expected %s arguments", n) == \
+            gettext.ngettext("expected %s argument", "expected %s arguments", n)
+    parser = argparse.ArgumentParser(prog="p", add_help=True)
+    parser.add_argument("x")
+    assert len(looked) == 1 and "positional arguments" in parser.format_help()
+
+
+def test_the_program_looks_up_the_catalogue_main_does_not(monkeypatch):
+    calls = []
+    monkeypatch.setattr(cli, "one_catalogue_lookup", lambda: calls.append("entry"))
+    monkeypatch.setattr(cli, "_main", lambda argv: 0)
+    monkeypatch.setattr(gc, "freeze", lambda: None)
+    assert cli.main(["check", "x.toml"]) == 0 and calls == []
+    assert cli.entry() == 0 and calls == ["entry"]

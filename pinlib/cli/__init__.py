@@ -15,7 +15,7 @@ import sys
 
 from pinlib import __version__
 from pinlib.cli.helptext import HelpLayout
-from pinlib.cli.startup import one_blas_thread
+from pinlib.cli.startup import one_blas_thread, one_catalogue_lookup
 from pinlib.core import messages as M
 from pinlib.core.errors import PinlibError
 
@@ -97,9 +97,12 @@ def entry() -> int:
     :func:`main` in a process that goes on are untouched.
 
     numpy's BLAS runs on one thread in this process (why, and how a user chooses
-    otherwise: :func:`pinlib.cli.startup.one_blas_thread`).
+    otherwise: :func:`pinlib.cli.startup.one_blas_thread`), and argparse's texts are
+    translated through one lookup of their catalogue
+    (:func:`pinlib.cli.startup.one_catalogue_lookup`).
     """
     one_blas_thread()
+    one_catalogue_lookup()
     gc.disable()
     code = main()
     gc.freeze()
