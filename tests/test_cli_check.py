@@ -188,6 +188,9 @@ NOT_ON_THE_CHECK_PATH = (
     # point to point, and the check solves no batch of studies
     "pinlib.engines.pushline.routes", "pinlib.engines.pushline.treeshape",
     "pinlib.physics.waveform.rowgrids",
+    # the terminal's width is taken without shutil and its compression modules, in the
+    # help formatters argparse makes too (pinlib.present.terminal.columns)
+    "shutil", "bz2", "lzma", "zlib",
 )
 
 
