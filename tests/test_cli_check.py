@@ -191,6 +191,9 @@ NOT_ON_THE_CHECK_PATH = (
     # the terminal's width is taken without shutil and its compression modules, in the
     # help formatters argparse makes too (pinlib.present.terminal.columns)
     "shutil", "bz2", "lzma", "zlib",
+    # a prefixed number is read by float() with the prefix added to its exponent
+    # (pinlib.core.quantity._scaled)
+    "decimal", "_decimal",
 )
 
 
