@@ -188,7 +188,37 @@ NOT_ON_THE_CHECK_PATH = (
     # point to point, and the check solves no batch of studies
     "pinlib.engines.pushline.routes", "pinlib.engines.pushline.treeshape",
     "pinlib.physics.waveform.rowgrids",
+    # the terminal's width is taken without shutil and its compression modules, in the
+    # help formatters argparse makes too (pinlib.present.terminal.columns)
+    "shutil", "bz2", "lzma", "zlib",
+    # a prefixed number is read by float() with the prefix added to its exponent
+    # (pinlib.core.quantity._scaled)
+    "decimal", "_decimal",
+    # glob only for a pattern among the designs named (pinlib.studies.designpaths), the
+    # command line to see more quoted without shlex (pinlib.cli.commands.check._quoted)
+    "glob", "shlex",
 )
+
+
+@pytest.mark.parametrize("path", ["", "demo-board.toml", "designs/demo board.toml",
+                                  "it's.toml", "a\"b", "café.toml", "x;rm -rf y", "~/a$b",
+                                  "C:\\boards\\a.toml", "@%+=:,./-_", "tab\there", "*.toml"])
+def test_the_command_to_see_more_is_quoted_as_shlex_quotes(path):
+    import shlex
+
+    from pinlib.cli.commands.check import _quoted
+
+    assert _quoted(path) == shlex.quote(path)
+
+
+@pytest.mark.parametrize("item", ["a.toml", "*.toml", "d/?.toml", "[ab].toml", "a]b.toml",
+                                  "designs/**/x.toml", "plain{1,2}.toml", ""])
+def test_a_pattern_is_what_glob_takes_for_one(item):
+    import glob
+
+    from pinlib.studies.designpaths import _MAGIC
+
+    assert any(c in item for c in _MAGIC) == glob.has_magic(item)
 
 
 def test_check_imports_nothing_it_does_not_use():

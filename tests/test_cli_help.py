@@ -59,3 +59,18 @@ def test_layout_fills_prose_and_keeps_indented_lines():
     # the words are the same words, in the same order
     assert " ".join(" ".join(out).split()) == " ".join(text.split())
     assert all(len(ln) <= 40 for ln in out[3:])
+
+
+@pytest.mark.parametrize("env_columns", [None, "100", "0", "x"])
+def test_help_width_is_argparse_own(monkeypatch, env_columns):
+    """HelpLayout takes argparse's default width (the terminal's columns less two)
+    without argparse's shutil: the same number for every COLUMNS."""
+    from pinlib.cli.helptext import HelpLayout
+
+    if env_columns is None:
+        monkeypatch.delenv("COLUMNS", raising=False)
+    else:
+        monkeypatch.setenv("COLUMNS", env_columns)
+    ours, theirs = HelpLayout("pinlib"), argparse.HelpFormatter("pinlib")
+    assert (ours._width, ours._max_help_position) == (theirs._width,
+                                                      theirs._max_help_position)

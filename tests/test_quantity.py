@@ -61,6 +61,39 @@ def test_decimal_prefixes_give_the_nearest_double():
     assert parse("4.7 kΩ", "Ω") == 4700.0
 
 
+@settings(max_examples=400, deadline=None)
+@given(st.text("0123456789", min_size=1, max_size=28), st.integers(0, 28),
+       st.sampled_from(["", "e7", "E-3", "e+12", "e-400", "e400", "e-99999999999"]),
+       st.sampled_from(["", "-", "+"]), st.sampled_from(["a", "f", "p", "n", "µ", "m", "",
+                                                        "k", "M", "G", "T"]))
+def test_prefixed_numbers_read_as_decimal_reads_them(digits, point, power, sign, prefix):
+    """The prefix's power of ten added to the number's exponent as text (no decimal
+    module): bit for bit what Decimal(number).scaleb(power), rounded to a float, gives
+    for every number of up to 28 digits (Decimal's precision), inf and 0 included."""
+    from decimal import Decimal
+
+    number = f"{sign}{digits[:point]}.{digits[point:]}{power}"
+    exponent = {"a": -18, "f": -15, "p": -12, "n": -9, "µ": -6, "m": -3, "": 0, "k": 3,
+                "M": 6, "G": 9, "T": 12}[prefix]  # published: the SI prefixes
+    try:
+        expected = float(Decimal(number).scaleb(exponent))
+    except ArithmeticError:  # beyond Decimal's exponents: the float product
+        expected = float(number) * 10.0 ** exponent
+    got = parse(f"{number} {prefix}V", "V") if math.isfinite(expected) else None
+    if got is None:  # refused as not finite, as before
+        with pytest.raises(UnitError):
+            parse(f"{number} {prefix}V", "V")
+        return
+    assert got == expected and math.copysign(1.0, got) == math.copysign(1.0, expected)
+
+
+def test_a_long_number_reads_as_its_nearest_double():
+    # derived: 2**53 + 1 = 9007199254740993 is halfway between the doubles 2**53 and
+    # 2**53 + 2, so any number just above it is nearest 2**53 + 2 (Decimal's 28 digits
+    # rounded it to the halfway point first, and then to 2**53)
+    assert parse("9007199254740993.0000000000000000000001 V", "V") == 2.0**53 + 2
+
+
 @pytest.mark.parametrize("text", ["4.7 kΩ", "4.7 kΩ", "4.7kohm", "4.7 k ohm", "4.7 KOhm",
                                   "4700 R", "4K7"])
 def test_resistance_spellings(text):

@@ -19,7 +19,7 @@ from pinlib.cli import main
 from pinlib.cli.commands.check import render_text
 from pinlib.engines.dispatch import check_file
 from pinlib.present.report import CAUTION_LINE, bus_line, format_text, problem_line
-from pinlib.present.terminal import status_word, use_colour, width, wrap
+from pinlib.present.terminal import columns, status_word, use_colour, width, wrap
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO_ARG = "workbooks/designs/demo-board.toml"   # as a user in the checkout types it
@@ -176,6 +176,32 @@ def test_width_honours_columns(monkeypatch):
     assert width() == 40  # the narrowest layout
     monkeypatch.delenv("COLUMNS")
     assert width() >= 40
+
+
+@pytest.mark.parametrize("env_columns", [None, "132", "0", "-5", "wide", " 90 "])
+@pytest.mark.parametrize("env_lines", [None, "30"])
+@pytest.mark.parametrize("tty", [(123, 40), (0, 0), OSError])
+def test_columns_are_those_of_shutil(monkeypatch, env_columns, env_lines, tty):
+    """terminal.columns() takes the width without importing shutil: the same number as
+    shutil.get_terminal_size for every COLUMNS, LINES and terminal (or none)."""
+    import shutil
+
+    for name, value in (("COLUMNS", env_columns), ("LINES", env_lines)):
+        if value is None:
+            monkeypatch.delenv(name, raising=False)
+        else:
+            monkeypatch.setenv(name, value)
+
+    def terminal_size(fd=None):
+        if tty is OSError:
+            raise OSError("not a terminal")
+        return os.terminal_size(tty)
+
+    monkeypatch.setattr(os, "get_terminal_size", terminal_size)
+    for fallback in (80, 100):
+        assert columns(fallback) == shutil.get_terminal_size((fallback, 24)).columns
+    monkeypatch.setattr("sys.__stdout__", None)  # no standard output at all
+    assert columns() == shutil.get_terminal_size((80, 24)).columns
 
 
 def test_wrap_keeps_a_number_with_its_unit():

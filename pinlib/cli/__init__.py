@@ -66,7 +66,7 @@ def build_parser(only: str | None = None) -> argparse.ArgumentParser:
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for name in COMMANDS:
         if only is not None and name != only:
-            sub.add_parser(name, help=SUMMARIES[name])
+            sub.add_parser(name, help=SUMMARIES[name], formatter_class=HelpLayout)
             continue
         try:
             module = importlib.import_module(f"pinlib.cli.commands.{name}")

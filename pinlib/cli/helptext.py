@@ -14,6 +14,8 @@ from __future__ import annotations
 import argparse
 import textwrap
 
+from pinlib.present.terminal import columns
+
 __all__ = ["HelpLayout", "layout"]
 
 
@@ -37,7 +39,17 @@ def layout(text: str, width: int) -> list[str]:
 
 
 class HelpLayout(argparse.RawDescriptionHelpFormatter):
-    """argparse's help with the description and epilog laid out by :func:`layout`."""
+    """argparse's help with the description and epilog laid out by :func:`layout`.
+
+    Its width when none is given is argparse's own, the terminal's columns less two,
+    taken by :func:`pinlib.present.terminal.columns` (the same number): argparse would
+    import :mod:`shutil` for it, with its compression modules, in every parser a
+    command builds (each argument added makes a formatter)."""
+
+    def __init__(self, prog, indent_increment=2, max_help_position=24, width=None):
+        if width is None:
+            width = columns() - 2
+        super().__init__(prog, indent_increment, max_help_position, width)
 
     def _fill_text(self, text, width, indent):
         return "".join(f"{indent}{line}\n" if line else "\n"

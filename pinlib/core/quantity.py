@@ -24,7 +24,6 @@ from __future__ import annotations
 import functools
 import math
 import re
-from decimal import Decimal
 
 import numpy as np
 
@@ -233,16 +232,15 @@ def _scaled(number: str, scale: float) -> float:
     """number × scale, exact to the last digit where the scale is a power of ten.
 
     ``2.2 × 1e-9`` in floating point is 2.2000000000000003e-09; reading ``"2.2e-9"``
-    gives the nearest double to the written value instead.
+    gives the nearest double to the written value instead (``float`` of a decimal
+    string is correctly rounded).  The prefix's power of ten is added to the number's
+    own exponent as text, so no :mod:`decimal` is imported; an exponent beyond the
+    doubles' range gives inf or 0, which the callers' finiteness check handles.
     """
     exponent = math.log10(scale)
     if exponent == round(exponent):
-        try:
-            return float(Decimal(number).scaleb(int(round(exponent))))
-        except ArithmeticError:
-            # An exponent beyond Decimal's range ('1e9999999 pF'): the float product is
-            # then inf or 0, which the callers' finiteness check handles.
-            pass
+        mantissa, _, power = number.partition("e") if "e" in number else number.partition("E")
+        return float(f"{mantissa}e{int(power or 0) + round(exponent)}")
     return float(number) * scale
 
 

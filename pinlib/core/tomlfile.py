@@ -325,7 +325,8 @@ def _same_file(fd: int, path: Path) -> bool:
 #: A temporary file of :func:`atomic_write` older than this (seconds) was left by a
 #: writer that was stopped; the next write in its folder removes it.
 STALE_TEMPORARY_SECONDS = 600
-_TEMPORARY = re.compile(r"^\..+\.(?:toml|json|html|md|svg|png)\.[a-z0-9_]{8}\.tmp$")
+#: The name of such a file (compiled when a file is written: a check writes none).
+_TEMPORARY = r"^\..+\.(?:toml|json|html|md|svg|png)\.[a-z0-9_]{8}\.tmp$"
 
 
 def _remove_stale_temporaries(folder: Path) -> None:
@@ -338,8 +339,9 @@ def _remove_stale_temporaries(folder: Path) -> None:
         entries = list(os.scandir(folder))
     except OSError:
         return
+    temporary = re.compile(_TEMPORARY)
     for entry in entries:
-        if not _TEMPORARY.match(entry.name):
+        if not temporary.match(entry.name):
             continue
         with contextlib.suppress(OSError):
             st = entry.stat(follow_symlinks=False)

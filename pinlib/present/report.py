@@ -31,7 +31,8 @@ __all__ = ["format_text", "format_value", "problem_line", "bus_line", "coupling_
 #: The caution in one line (the whole text heads ``--detail`` and the JSON).
 CAUTION_LINE = "Caution: estimates for design review; confirm them on the real board."
 MODES = ("summary", "quiet", "detail")
-_STATUS_RE = re.compile(r"\b(PASS|WARN|FAIL)\b")
+#: The status words :func:`paint` colours (compiled only for colour, on a terminal).
+_STATUS_RE = r"\b(PASS|WARN|FAIL)\b"
 
 
 def _relation(c: Check) -> str:
@@ -270,8 +271,8 @@ def _summary(result: DesignResult, cols: int, more: str | None, quiet: bool) -> 
 
 def paint(lines: list[str]) -> list[str]:
     """The status words of ``lines`` in colour (after wrapping: widths count letters)."""
-    return [_STATUS_RE.sub(lambda m: status_word(m.group(1).lower(), True), ln)
-            for ln in lines]
+    status = re.compile(_STATUS_RE)
+    return [status.sub(lambda m: status_word(m.group(1).lower(), True), ln) for ln in lines]
 
 
 def format_text(result: DesignResult, *, mode: str = "summary", width: int = DEFAULT_WIDTH,

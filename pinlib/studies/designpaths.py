@@ -15,15 +15,20 @@ from pinlib.core.errors import InputError
 
 __all__ = ["expand_designs"]
 
+#: The characters that make an item a glob pattern (``glob.has_magic``).
+_MAGIC = "*?["
+
 
 def expand_designs(items) -> list[Path]:
     """The design files named: each item a file, or a glob pattern (``*``, ``?``, ``[``;
-    ``**`` reaches into sub-folders), its matches sorted; each file once, in order."""
-    import glob
-
+    ``**`` reaches into sub-folders), its matches sorted; each file once, in order.
+    :mod:`glob` is imported only for a pattern (an item with ``*``, ``?`` or ``[``,
+    what ``glob.has_magic`` looks for)."""
     out: dict[Path, None] = {}
     for item in items:
-        if glob.has_magic(item):
+        if any(c in item for c in _MAGIC):
+            import glob
+
             found = sorted(glob.glob(item, recursive=True))
             found = [f for f in found if os.path.isfile(f)]
             if not found:
