@@ -14,6 +14,7 @@ import numpy as np
 from pinlib.core.quantity import format_si
 from pinlib.engines.pushline.drive import DriveCase, drive_case, route_case
 from pinlib.engines.pushline.pins import Endpoint
+from pinlib.engines.readout import UNSTATED, explained
 from pinlib.model.design import Line
 from pinlib.model.result import LineResult
 
@@ -135,7 +136,9 @@ def _cases(a: LineAnalysis, rs: float, pullup) -> dict:
 
 
 def _fmt(x, unit):
-    return format_si(x, unit)
+    """``format_si(x, unit)``; inside :func:`~pinlib.engines.readout.summaries_only`, where
+    no text is read, :data:`~pinlib.engines.readout.UNSTATED`."""
+    return format_si(x, unit) if explained() else UNSTATED
 
 
 def _figures_of(cases: dict, receivers=()) -> dict:
