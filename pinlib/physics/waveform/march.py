@@ -250,6 +250,7 @@ class _Scan:
             x = x * x
             span *= 2
         self.tmp = np.empty_like(self.a_pow)
+        self.lead = (slice(None),) * time + (None,)  # v_last with the run's axis added
 
     def __call__(self, w: np.ndarray, v_last: np.ndarray) -> np.ndarray:
         m, span = w.shape[self.time], 1
@@ -262,7 +263,7 @@ class _Scan:
             w[t + (slice(span, m),)] += tmp
             span *= 2
         tmp = self.tmp[t + (slice(0, m),)]
-        np.multiply(self.a_pow[t + (slice(0, m),)], np.expand_dims(v_last, self.time), out=tmp)
+        np.multiply(self.a_pow[t + (slice(0, m),)], v_last[self.lead], out=tmp)
         w += tmp
         return w
 
