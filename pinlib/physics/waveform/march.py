@@ -86,8 +86,11 @@ def _source_samples(t: np.ndarray, vdd: np.ndarray, t_ramp: np.ndarray) -> np.nd
     has_ramp = ramp > 0.0
     # Divide only where the ramp has a duration; a step (t_ramp = 0) is 0 at t = 0 and
     # vdd after it.
-    fraction = np.where(has_ramp, np.clip(t / np.where(has_ramp, ramp, 1.0), 0.0, 1.0),
-                        (t > 0.0).astype(float))
+    if np.all(has_ramp):  # every case ramps (the other branch would be discarded)
+        fraction = np.clip(t / ramp, 0.0, 1.0)
+    else:
+        fraction = np.where(has_ramp, np.clip(t / np.where(has_ramp, ramp, 1.0), 0.0, 1.0),
+                            (t > 0.0).astype(float))
     return vdd[..., None] * fraction
 
 
