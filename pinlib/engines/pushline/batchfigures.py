@@ -77,7 +77,9 @@ def _store(t: np.ndarray, v: np.ndarray, rows: list) -> None:
     keys = [r[2] for r in rows]
     vf = np.array([u.v_from for u in uses])
     vt = np.array([u.v_to for u in uses])
-    rec = vf[:, None] + (vt - vf)[:, None] * _pick(v, idx)  # as simulate_edge makes each
+    # as simulate_edge makes each record, v_from + swing * unit (summed in place)
+    rec = np.multiply((vt - vf)[:, None], _pick(v, idx))
+    rec += vf[:, None]
     t = _pick(t, idx) if t.ndim > 1 else t  # each row's own grid, or the one they share
     t_edge = wf.edge_time(t, rec, vt, v_initial=vf, n_valid=n)
     over = wf.overshoot(rec, np.maximum(vf, vt), n_valid=n)
