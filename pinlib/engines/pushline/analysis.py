@@ -89,7 +89,10 @@ class LineAnalysis:
 
     @property
     def z0(self) -> float:
-        return next((s.z0 for s in self.stretches if s.td > 0), math.nan)
+        for s in self.stretches:  # the first section with a delay (read often: a loop)
+            if s.td > 0:
+                return s.z0
+        return math.nan
 
     def without_series(self, ref: str) -> DriveCase | None:
         """The case of driver ``ref`` without the line's series resistor, solved on
