@@ -214,8 +214,9 @@ def march_rows(net: Network, delays: np.ndarray, v_src: np.ndarray, n_t: int) ->
     # the source's samples and its current (the same products, taken together)
     starts = 1 + np.arange(runs)[:, None] * block[None, :]          # (runs, B)
     v_runs = source.take(ahead[None] + starts[:, None, :])          # (runs, K, B)
-    i_runs = net.g_source * v_runs
     held = bool(np.any(net.forced))  # else the source node is never overwritten
+    # the samples are read again only at a forced node: else their current takes their place
+    i_runs = np.multiply(net.g_source, v_runs, out=None if held else v_runs)
     last = block - 1
     at_in, at_out = np.empty_like(base), np.empty_like(put)
     for j in range(runs):
