@@ -8,7 +8,7 @@ import pytest
 
 from pinlib.engines import memo
 from pinlib.engines.dispatch import evaluate_bus
-from pinlib.engines.readout import explained, summaries_only
+from pinlib.engines.readout import UNSTATED, explained, summaries_only
 from pinlib.model.design import load_design
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -60,3 +60,19 @@ def test_a_long_auto_line_leaves_its_comparison_out():
         assert ts.value == tf.value > 0  # the same resistor chosen
         assert tf.details["without"] is not None and ts.details["without"] is None
         assert "not worked out" in ts.message
+
+
+def test_summaries_leave_the_numbers_of_texts_out():
+    design, buses = _push_pull(DESIGNS[0])
+    display = next(b for b in buses if b.id == "display")
+    with memo.run_scope(), summaries_only():
+        short = evaluate_bus(display, design)
+    full = evaluate_bus(display, design)
+    pairs = list(zip((c for *_, c in short.all_checks()), (c for *_, c in full.all_checks()),
+                     strict=True))
+    # what names a check and its limit is the full engine's; only the texts are shorter
+    assert all((s.id, s.subject, s.unit, s.source) == (f.id, f.subject, f.unit, f.source)
+               for s, f in pairs)
+    assert any(UNSTATED in s.message for s, _ in pairs)
+    assert not any(UNSTATED in f.message for _, f in pairs)
+    assert not any(UNSTATED in n for n in full.notes)

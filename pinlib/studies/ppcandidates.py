@@ -36,9 +36,10 @@ __all__ = ["CHUNK", "evaluate_batched", "batched_note"]
 
 #: Candidates whose edges are solved together (and held in memory until their
 #: evaluations end; ranking 1,000 SPI parts at the demo's display position peaks near
-#: 340 MB of process).  The more candidates, the more edges each solver call takes (a
-#: call is one chain of sections and the steps within ``batchsolve.STEP_RATIO`` of each
-#: other: 19-23 calls for 256 candidates at the display position).
+#: 200 MB of process, 310 MB at 512 a chunk).  The more candidates, the more edges each
+#: solver call takes (a call is one chain of sections and the steps within
+#: ``batchsolve.STEP_RATIO`` of each other: 19-23 calls for 256 candidates at the
+#: display position).
 CHUNK = 256
 
 

@@ -19,6 +19,7 @@ from pinlib.core import eseries
 from pinlib.core.protocols import protocol
 from pinlib.core.valueclass import value_class
 from pinlib.engines.limits import OpenDrainLimits
+from pinlib.engines.readout import UNSTATED, explained
 from pinlib.library.schema import Pin
 from pinlib.model.design import Bus, Device, Segment
 from pinlib.model.result import Check, check_max, check_min, max_margin, min_margin
@@ -285,12 +286,15 @@ def supply_range_text(who: str, low: bool, rail: float, s_min: float, s_max: flo
     where ``low``) against the part's range."""
     from pinlib.core.quantity import format_si
 
-    rng = f"{format_si(s_min, 'V')} to {format_si(s_max, 'V')}"
+    def volts(x) -> str:  # summaries only read no text (readout.UNSTATED)
+        return format_si(x, "V") if explained() else UNSTATED
+
+    rng = f"{volts(s_min)} to {volts(s_max)}"
     if low:
         at = " at the rail's minimum" if ends else ""
-        return f"{who} runs from {format_si(rail, 'V')}{at}; its part needs {rng}"
+        return f"{who} runs from {volts(rail)}{at}; its part needs {rng}"
     at = " at the rail's maximum" if ends else ""
-    return f"{who} runs from {format_si(rail, 'V')}{at}; its part allows {rng}"
+    return f"{who} runs from {volts(rail)}{at}; its part allows {rng}"
 
 
 def supply_margin(lo, hi, s_min, s_max):

@@ -15,6 +15,7 @@ from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
 from pinlib.engines.pushline.drive import DriveCase, drive_case, route_case
 from pinlib.engines.pushline.pins import Endpoint
+from pinlib.engines.readout import UNSTATED, explained
 from pinlib.model.design import Line
 from pinlib.model.result import LineResult
 
@@ -89,7 +90,10 @@ class LineAnalysis:
 
     @property
     def z0(self) -> float:
-        return next((s.z0 for s in self.stretches if s.td > 0), math.nan)
+        for s in self.stretches:  # the first section with a delay (read often: a loop)
+            if s.td > 0:
+                return s.z0
+        return math.nan
 
     def without_series(self, ref: str) -> DriveCase | None:
         """The case of driver ``ref`` without the line's series resistor, solved on
@@ -136,7 +140,9 @@ def _cases(a: LineAnalysis, rs: float, pullup) -> dict:
 
 
 def _fmt(x, unit):
-    return format_si(x, unit)
+    """``format_si(x, unit)``; inside :func:`~pinlib.engines.readout.summaries_only`, where
+    no text is read, :data:`~pinlib.engines.readout.UNSTATED`."""
+    return format_si(x, unit) if explained() else UNSTATED
 
 
 def _figures_of(cases: dict, receivers=()) -> dict:

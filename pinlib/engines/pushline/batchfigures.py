@@ -76,8 +76,10 @@ def _store(t: np.ndarray, v: np.ndarray, rows: list) -> None:
     keys = [r[2] for r in rows]
     vf = np.array([u.v_from for u in uses])
     vt = np.array([u.v_to for u in uses])
-    rec = vf[:, None] + (vt - vf)[:, None] * v[idx]  # as simulate_edge makes each record
-    t = t[idx] if t.ndim > 1 else t  # each row's own grid, or the one they share
+    # as simulate_edge makes each record, v_from + swing * unit (summed in place)
+    rec = np.multiply((vt - vf)[:, None], _pick(v, idx))
+    rec += vf[:, None]
+    t = _pick(t, idx) if t.ndim > 1 else t  # each row's own grid, or the one they share
     t_edge = wf.edge_time(t, rec, vt, v_initial=vf, n_valid=n)
     over = wf.overshoot(rec, np.maximum(vf, vt), n_valid=n)
     under = wf.undershoot(rec, np.minimum(vf, vt), n_valid=n)
@@ -89,22 +91,33 @@ def _store(t: np.ndarray, v: np.ndarray, rows: list) -> None:
         if not mine:
             continue
         # the edge's rows taken once; a slot that asks of all of them reads these whole
-        part = (_rows(t, mine), rec[mine], n[mine], [keys[i] for i in mine],
+        part = (_rows(t, mine), _pick(rec, mine), n[mine], [keys[i] for i in mine],
                 [uses[i] for i in mine])
         _crossings(*part, list(range(len(mine))), edge)
         _recrossings(*part, list(range(len(mine))), edge)
 
 
+def _pick(a: np.ndarray, sel) -> np.ndarray:
+    """Rows ``sel`` of ``a``: a view where they are evenly spaced in order (a batch's
+    rises or falls, every row), else a copy; the same rows either way."""
+    sel = np.asarray(sel)
+    if sel.size > 1:
+        step = int(sel[1] - sel[0])
+        if step > 0 and np.array_equal(sel, np.arange(sel.size) * step + sel[0]):
+            return a[int(sel[0]):int(sel[-1]) + 1:step]
+    return a[sel]
+
+
 def _rows(t: np.ndarray, sel: list) -> np.ndarray:
     """The time grids of rows ``sel``: the one shared axis, or each row's own."""
-    return t[sel] if t.ndim > 1 else t
+    return _pick(t, sel) if t.ndim > 1 else t
 
 
 def _taken(t: np.ndarray, rec: np.ndarray, n: np.ndarray, sel: list) -> tuple:
     """Grids, records and sample counts of rows ``sel`` (no copy when they are all)."""
     if len(sel) == rec.shape[0]:
         return t, rec, n
-    return _rows(t, sel), rec[sel], n[sel]
+    return _rows(t, sel), _pick(rec, sel), n[sel]
 
 
 def _slots(mine: list, count) -> list[tuple[int, list[int]]]:

@@ -67,9 +67,12 @@ def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
     if abs_max is None:
         return []
     refs, peaks, dips, net, fast = table
-    own = np.array([r != p.ref for r in refs], dtype=bool)
-    if not own.any():
-        return []
+    if net is None and refs and p.ref not in refs:  # a pin that drives none of the
+        own = slice(None)                            # cases: all of them, without a mask
+    else:
+        own = np.array([r != p.ref for r in refs], dtype=bool)
+        if not own.any():
+            return []
     if net is not None:
         node = net.node(p.ref)
         peaks, dips = peaks[:, node], dips[:, node]

@@ -7,12 +7,15 @@ from typing import NamedTuple
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.quantity import format_si
+from pinlib.engines.readout import UNSTATED, explained
 
 _CONTROLLER_DRIVES = ("sclk", "copi", "cs")
 
 
 def _fmt(x, unit):
-    return format_si(x, unit)
+    """``format_si(x, unit)``; inside :func:`~pinlib.engines.readout.summaries_only`, where
+    no text is read, :data:`~pinlib.engines.readout.UNSTATED`."""
+    return format_si(x, unit) if explained() else UNSTATED
 
 
 _SPI_ORDER = ("sclk", "copi", "cs", "cipo")

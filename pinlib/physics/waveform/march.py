@@ -86,8 +86,11 @@ def _source_samples(t: np.ndarray, vdd: np.ndarray, t_ramp: np.ndarray) -> np.nd
     has_ramp = ramp > 0.0
     # Divide only where the ramp has a duration; a step (t_ramp = 0) is 0 at t = 0 and
     # vdd after it.
-    fraction = np.where(has_ramp, np.clip(t / np.where(has_ramp, ramp, 1.0), 0.0, 1.0),
-                        (t > 0.0).astype(float))
+    if np.all(has_ramp):  # every case ramps (the other branch would be discarded)
+        fraction = np.clip(t / ramp, 0.0, 1.0)
+    else:
+        fraction = np.where(has_ramp, np.clip(t / np.where(has_ramp, ramp, 1.0), 0.0, 1.0),
+                            (t > 0.0).astype(float))
     return vdd[..., None] * fraction
 
 
@@ -250,21 +253,35 @@ class _Scan:
             x = x * x
             span *= 2
         self.tmp = np.empty_like(self.a_pow)
+        self.lead = (slice(None),) * time + (None,)  # v_last with the run's axis added
+        self.plans: dict = {}
 
     def __call__(self, w: np.ndarray, v_last: np.ndarray) -> np.ndarray:
-        m, span = w.shape[self.time], 1
-        t = (slice(None),) * self.time
-        for power in self.doubling:
-            if span >= m:
-                break
-            tmp = self.tmp[t + (slice(0, m - span),)]
-            np.multiply(power, w[t + (slice(0, m - span),)], out=tmp)
-            w[t + (slice(span, m),)] += tmp
-            span *= 2
-        tmp = self.tmp[t + (slice(0, m),)]
-        np.multiply(self.a_pow[t + (slice(0, m),)], np.expand_dims(v_last, self.time), out=tmp)
-        w += tmp
+        m = w.shape[self.time]
+        passes, head, a_pow = self._plan(m)
+        for power, tmp, early, late in passes:
+            np.multiply(power, w[early], out=tmp)
+            w[late] += tmp
+        np.multiply(a_pow, v_last[self.lead], out=head)
+        w += head
         return w
+
+    def _plan(self, m: int) -> tuple:
+        """The doubling passes over a run of ``m`` samples (each pass's power, its part
+        of the scratch array, the indices of its earlier and later samples), the scratch
+        of the whole run and the powers it takes; made once per run length."""
+        got = self.plans.get(m)
+        if got is None:
+            t, span, passes = (slice(None),) * self.time, 1, []
+            for power in self.doubling:
+                if span >= m:
+                    break
+                passes.append((power, self.tmp[t + (slice(0, m - span),)],
+                               t + (slice(0, m - span),), t + (slice(span, m),)))
+                span *= 2
+            got = self.plans[m] = (passes, self.tmp[t + (slice(0, m),)],
+                                   self.a_pow[t + (slice(0, m),)])
+        return got
 
 
 def _port_groups(net: Network) -> list[list[int]]:

@@ -204,17 +204,26 @@ def march_rows(net: Network, delays: np.ndarray, v_src: np.ndarray, n_t: int) ->
     one_each = n_ports == n_nodes and np.array_equal(net.port_node, np.arange(n_nodes))
     groups = _port_groups(net)
 
-    out = np.empty((n_nodes, runs, k_max, n_b))
+    out = np.empty((runs, n_nodes, k_max, n_b))  # each run's block contiguous
     v_last = np.zeros((n_nodes, n_b))
     i_last = np.zeros((n_nodes, n_b))
     i_last[src] = net.g_source * v_src[0]
     v_last[src] = np.where(net.forced, v_src[0], 0.0)
     first = v_last.copy()
+    # what does not depend on the march, for every run at once: each run's first step,
+    # the source's samples and its current (the same products, taken together)
+    starts = 1 + np.arange(runs)[:, None] * block[None, :]          # (runs, B)
+    v_runs = source.take(ahead[None] + starts[:, None, :])          # (runs, K, B)
+    held = bool(np.any(net.forced))  # else the source node is never overwritten
+    # the samples are read again only at a forced node: else their current takes their place
+    i_runs = np.multiply(net.g_source, v_runs, out=None if held else v_runs)
+    last = block - 1
+    at_in, at_out = np.empty_like(base), np.empty_like(put)
     for j in range(runs):
-        start = 1 + j * block                                       # (B,)
-        v_here = source.take(ahead + start)                         # (K, B)
+        start = starts[j]                                           # (B,)
+        v_here = v_runs[j]                                          # (K, B)
         if n_ports:
-            got = launched.take(base + start)                       # (P, K + 1, B)
+            got = launched.take(np.add(base, start, out=at_in))     # (P, K + 1, B)
             inc = got[:, 1:]
             if frac is not None:  # a delay between two samples: linear interpolation
                 inc = inc + frac * (got[:, :-1] - inc)
@@ -224,19 +233,22 @@ def march_rows(net: Network, delays: np.ndarray, v_src: np.ndarray, n_t: int) ->
                 cur = _node_sums(two_g * inc, groups, np.empty((n_nodes, k_max, n_b)), axis=0)
         else:
             cur = np.zeros((n_nodes, k_max, n_b))
-        cur[src] += net.g_source * v_here
-        w = np.multiply(c_now, cur, out=out[:, j])  # the run summed in its place
+        cur[src] += i_runs[j]
+        w = np.multiply(c_now, cur, out=out[j])  # the run summed in its place
         w[:, 0] += net.c_prev * i_last
         w[:, 1:] += c_prev * cur[:, :-1]
         w = scan(w, v_last)
-        w[src] = np.where(forced, v_here, w[src])
+        if held:
+            w[src] = np.where(forced, v_here, w[src])
         if n_ports:
-            launched[put + start] = (w if one_each else w[net.port_node]) - inc
-        i_last = cur[:, block - 1, cols]
-        v_last = w[:, block - 1, cols]
+            launched[np.add(put, start, out=at_out)] = (
+                (w if one_each else w[net.port_node]) - inc)
+        i_last = cur[:, last, cols]
+        v_last = w[:, last, cols]
     volts = np.empty((n_b, n_nodes, n_t))
     volts[:, :, 0] = first.T
     for r in range(n_b):  # each case's runs, its own steps of each, in order
         k = int(block[r])
-        volts[r, :, 1:] = out[:, :, :k, r].reshape(n_nodes, runs * k)[:, :n_t - 1]
+        runs_r = out[:, :, :k, r].transpose(1, 0, 2)                # (nodes, runs, k)
+        volts[r, :, 1:] = runs_r.reshape(n_nodes, runs * k)[:, :n_t - 1]
     return volts.transpose(1, 2, 0)
