@@ -28,7 +28,9 @@ from pinlib.studies.whatif.yields import Yield, wilson_interval
 #: two-CPU Intel Xeon, medians of three runs, 25,000 -> 5,000 boards a pass took the
 #: demo's open-drain buses from 63,000 to 84,000 boards/s, its flash bus from 105,000 to
 #: 130,000 and the whole demo from 28,000 to 34,000 (1,000 a pass: 57,000, the Python of
-#: each pass then showing).
+#: each pass then showing).  Once the open-drain checks' cells were laid out with the
+#: variants last (``engines/opendrain/batchresult.py``) those buses ran at 107,000
+#: boards/s with either size, and the flash bus still at 131,000 against 104,000.
 CHUNK = 5_000
 
 #: A run draws at most this many boards (:mod:`pinlib.core.worklimits` says why).
