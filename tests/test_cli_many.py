@@ -160,6 +160,30 @@ def test_many_designs_one_line_each_and_the_worst_exit_code(tmp_path, capsys, mo
     assert [r["status"] for r in rows] == ["warn", "fail", "error"]
     assert "c.toml:2, field 'title'" in rows[2]["error"]
     assert "c.toml: not checked" in captured.err
+    # beside the design's name the location is a line of it, the file not named twice
+    main(["check", "*.toml", "--jobs", "1"])
+    captured = capsys.readouterr()
+    line = captured.out.splitlines()[2]
+    assert line.startswith("ERROR c.toml  not checked: line 2, field 'title'")
+    assert "c.toml:2" not in line
+    assert "pinlib: error: c.toml: not checked: line 2, field 'title'" in captured.err
+
+
+def test_an_error_in_another_file_keeps_its_file(tmp_path):
+    from pinlib.core.errors import InputError
+
+    design = tmp_path / "board.toml"
+    here = InputError("a required field is missing", file=str(design), line=3, field="bus")
+    assert here.message_in(design) == "line 3, field 'bus': a required field is missing"
+    assert here.message_in(str(design)) == here.message_in(design)
+    lib = InputError("bad value", file=str(tmp_path / "part.toml"), line=7, field="c_in",
+                     expected="a capacitance")
+    assert lib.message_in(design) == lib.message  # a library file stays named
+    assert lib.message.startswith(str(tmp_path / "part.toml") + ":7")
+    no_line = InputError("cannot be read", file=str(design))
+    assert no_line.message_in(design) == "cannot be read"
+    line_only = InputError("not TOML", file=str(design), line=4)
+    assert line_only.message_in(design) == "line 4: not TOML"
 
 
 def test_parallel_and_serial_runs_agree(tmp_path):

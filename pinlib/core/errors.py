@@ -108,6 +108,21 @@ class PinlibError(Exception):
             parts.append(f"field '{_cut(self.field)}'")
         return ", ".join(parts)
 
+    def message_in(self, path) -> str:
+        """The message as read beside ``path`` (a line that already names that file):
+        where the error lies in ``path`` itself its location says ``line N`` without the
+        file; an error in another file (a library part) keeps its file."""
+        import os
+
+        if not self.file or os.path.abspath(self.file) != os.path.abspath(str(path)):
+            return self.message
+        inner = type(self)(self.problem, field=self.field, value=self.value,
+                           expected=self.expected, hint=self.hint)
+        text = inner.message
+        if self.line is None:
+            return text
+        return f"line {self.line}, {text}" if self.field else f"line {self.line}: {text}"
+
     @property
     def message(self) -> str:
         text = self.problem

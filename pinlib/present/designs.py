@@ -14,7 +14,8 @@ def summary_line(s, width: int) -> str:
     """One design: status, path, then its counts and title, or why it was not checked."""
     head = f"{_WORDS.get(s.status, s.status.upper()):<6}{s.path:<{width}}  "
     if s.error is not None:
-        return head + M.DESIGN_NOT_LOADED.format(path=s.path, message=s.error) \
+        message = s.error_here or s.error
+        return head + M.DESIGN_NOT_LOADED.format(path=s.path, message=message) \
             .removeprefix(f"{s.path}: ")
     c = s.counts
     return head + f"{c['pass']} pass, {c['warn']} warn, {c['fail']} fail — {s.title}"

@@ -39,6 +39,9 @@ class DesignSummary:
         Checks by status (``pass``, ``warn``, ``fail``).
     error : str or None
         The error's message when the design could not be checked.
+    error_here : str or None
+        The same message beside the design's name: a location in the design file itself
+        as ``line N`` (:meth:`pinlib.core.errors.PinlibError.message_in`).
     result : dict or None
         The result as JSON (``pinlib.result/1``).
     changes : dict or None
@@ -57,6 +60,7 @@ class DesignSummary:
     status: str = "error"
     counts: dict = field(default_factory=lambda: {"pass": 0, "warn": 0, "fail": 0})
     error: str | None = None
+    error_here: str | None = None
     result: dict | None = None
     changes: dict | None = None
     changes_text: str | None = None
@@ -80,7 +84,7 @@ def check_one(path, library_folders=(), against_snapshots: bool = False,
         out.title = design.title
         result = check_design(design)
     except PinlibError as err:
-        out.error = err.message
+        out.error, out.error_here = err.message, err.message_in(path)
         return out
     out.status = result.status
     for b in result.results():

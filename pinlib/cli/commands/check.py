@@ -149,8 +149,8 @@ def _run_many(args, paths) -> int:
                            threshold=args.threshold, progress=progress)
     for s in summaries:
         if s.error is not None:
-            print("pinlib: error: " + M.DESIGN_NOT_LOADED.format(path=s.path, message=s.error),
-                  file=sys.stderr)
+            print("pinlib: error: " + M.DESIGN_NOT_LOADED.format(
+                path=s.path, message=s.error_here or s.error), file=sys.stderr)
         for note in s.notes:
             print(f"pinlib: warning: {s.path}: {note}", file=sys.stderr)
     if args.json:
