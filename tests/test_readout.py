@@ -48,12 +48,17 @@ def test_summaries_equal_full_results(path):
         assert [ln.figures for ln in short.lines] == [ln.figures for ln in full.lines]
 
 
-def test_a_long_auto_line_leaves_its_comparison_out():
+def _display_short_and_full():
+    """The demo's display bus evaluated for summaries only, then in full."""
     design, buses = _push_pull(DESIGNS[0])
     display = next(b for b in buses if b.id == "display")
     with memo.run_scope(), summaries_only():
         short = evaluate_bus(display, design)
-    full = evaluate_bus(display, design)
+    return short, evaluate_bus(display, design)
+
+
+def test_a_long_auto_line_leaves_its_comparison_out():
+    short, full = _display_short_and_full()
     for s, f in zip(short.lines, full.lines, strict=True):
         ts = next(c for c in s.checks if c.id == "series-termination")
         tf = next(c for c in f.checks if c.id == "series-termination")
@@ -63,11 +68,7 @@ def test_a_long_auto_line_leaves_its_comparison_out():
 
 
 def test_summaries_leave_the_numbers_of_texts_out():
-    design, buses = _push_pull(DESIGNS[0])
-    display = next(b for b in buses if b.id == "display")
-    with memo.run_scope(), summaries_only():
-        short = evaluate_bus(display, design)
-    full = evaluate_bus(display, design)
+    short, full = _display_short_and_full()
     pairs = list(zip((c for *_, c in short.all_checks()), (c for *_, c in full.all_checks()),
                      strict=True))
     # what names a check and its limit is the full engine's; only the texts are shorter
