@@ -322,12 +322,17 @@ def _finish_many(p: _Pending, margin, value, limit, n: int) -> None:
     sl = (slice(p.r0, p.r1), slice(0, p.k))
     mm = margin[sl]
     flat = mm.reshape(-1, n)
-    idx = np.argmin(np.where(flat != flat, -np.inf, flat), axis=0)
     ar = np.arange(n)
     chk = p.chk
-    chk.margin = flat[idx, ar]
-    chk.value = value[sl].reshape(-1, n)[idx, ar]
-    chk.limit = limit[sl].reshape(-1, n)[idx, ar]
+    if flat.shape[0] == 1:  # one cell a variant (most checks): it is the worst
+        idx = np.zeros(n, dtype=np.intp)
+        chk.margin, chk.value, chk.limit = (
+            a[sl].reshape(-1, n)[0].copy() for a in (margin, value, limit))
+    else:
+        idx = np.argmin(np.where(flat != flat, -np.inf, flat), axis=0)
+        chk.margin = flat[idx, ar]
+        chk.value = value[sl].reshape(-1, n)[idx, ar]
+        chk.limit = limit[sl].reshape(-1, n)[idx, ar]
     row = idx // p.k
     warn = p.warn
     if isinstance(warn, (list, tuple)):
