@@ -195,7 +195,7 @@ NOT_ON_THE_CHECK_PATH = (
     # (pinlib.core.quantity._scaled)
     "decimal", "_decimal",
     # glob only for a pattern among the designs named (pinlib.studies.designpaths), the
-    # command line to see more quoted without shlex (pinlib.cli.commands.check._quoted)
+    # command line to see more quoted without shlex (pinlib.present.terminal.shell_word)
     "glob", "shlex",
 )
 
@@ -206,9 +206,9 @@ NOT_ON_THE_CHECK_PATH = (
 def test_the_command_to_see_more_is_quoted_as_shlex_quotes(path):
     import shlex
 
-    from pinlib.cli.commands.check import _quoted
+    from pinlib.present.terminal import shell_word
 
-    assert _quoted(path) == shlex.quote(path)
+    assert shell_word(path) == shlex.quote(path)
 
 
 @pytest.mark.parametrize("item", ["a.toml", "*.toml", "d/?.toml", "[ab].toml", "a]b.toml",

@@ -22,7 +22,8 @@ import re
 import sys
 import textwrap
 
-__all__ = ["DEFAULT_WIDTH", "MIN_WIDTH", "columns", "width", "use_colour", "status_word", "wrap"]
+__all__ = ["DEFAULT_WIDTH", "MIN_WIDTH", "columns", "width", "use_colour", "status_word", "wrap",
+           "shell_word"]
 
 #: Columns when standard output is not a terminal and COLUMNS is not set.
 DEFAULT_WIDTH = 80
@@ -102,3 +103,20 @@ def wrap(text: str, cols: int, indent: str = "", subsequent: str = "    ") -> li
     lines = textwrap.wrap(glued, max(10, cols), initial_indent=indent,
                           subsequent_indent=indent + subsequent, break_on_hyphens=False)
     return [ln.replace(_NBSP, " ") for ln in lines] or [indent.rstrip()]
+
+
+#: The characters a shell word keeps unquoted: ``shlex.quote``'s (``\w`` in ASCII and
+#: ``@%+=:,./-``), written out so a check does not import shlex for one path.
+_SHELL_SAFE = frozenset("abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789"
+                        "_@%+=:,./-")
+
+
+def shell_word(path) -> str:
+    """``path`` as one shell word, as ``shlex.quote`` writes it (a command the text
+    suggests, ready to paste; tests/test_cli_check.py compares the two)."""
+    text = str(path)
+    if not text:
+        return "''"
+    if all(c in _SHELL_SAFE for c in text):
+        return text
+    return "'" + text.replace("'", "'\"'\"'") + "'"

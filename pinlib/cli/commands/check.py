@@ -233,14 +233,14 @@ def render_text(result, args, *, design_arg: str | None = None, stream=None) -> 
     for (--detail, --quiet, else the summary), fitted to the terminal's width (COLUMNS,
     else 80 off a terminal), status words coloured on a terminal unless NO_COLOR is set."""
     from pinlib.present.report import format_text
-    from pinlib.present.terminal import use_colour, width
+    from pinlib.present.terminal import shell_word, use_colour, width
 
     stream = sys.stdout if stream is None else stream
     mode = ("detail" if getattr(args, "detail", False) else
             "quiet" if getattr(args, "quiet", False) else "summary")
     more = None
     if design_arg is not None:
-        more = f"pinlib check {_quoted(design_arg)} --detail"
+        more = f"pinlib check {shell_word(design_arg)} --detail"
     return format_text(result, mode=mode, width=width(), colour=use_colour(stream), more=more)
 
 
@@ -250,23 +250,6 @@ def _fitted(text: str) -> str:
     from pinlib.present.terminal import width
 
     return "\n".join(fit(text.rstrip("\n").split("\n"), width())) + "\n"
-
-
-#: The characters a shell word keeps unquoted: ``shlex.quote``'s (``\w`` in ASCII and
-#: ``@%+=:,./-``), written out so a check does not import shlex for one path.
-_SHELL_SAFE = frozenset("abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789"
-                        "_@%+=:,./-")
-
-
-def _quoted(path: str) -> str:
-    """``path`` as one shell word, as ``shlex.quote`` writes it (tests/test_cli_check.py
-    compares the two)."""
-    text = str(path)
-    if not text:
-        return "''"
-    if all(c in _SHELL_SAFE for c in text):
-        return text
-    return "'" + text.replace("'", "'\"'\"'") + "'"
 
 
 def _warn_implausible(design) -> None:

@@ -10,13 +10,13 @@ design's comments use work from ``FOLDER`` as they do from the repository's root
 
 from __future__ import annotations
 
-import shlex
 from pathlib import Path
 
 from pinlib.cli import SUMMARIES
 from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, WriteError
+from pinlib.present.terminal import shell_word
 
 __all__ = ["add_parser", "run", "source_folder", "demo_files", "DEFAULT_FOLDER"]
 
@@ -100,15 +100,15 @@ def run(args) -> int:
         # bytes decoded as they are: line endings and the notebooks' JSON kept exactly
         atomic_write(dest, (source / rel).read_bytes().decode("utf-8"))
 
-    design = shlex.quote(str(target / DEMO_DESIGN))
+    design = shell_word(str(target / DEMO_DESIGN))
     print(f"Copied the demo into {folder}: {len(files)} files.")
     print("(An invented scenario built from generic part classes.)")
     for rel in files:
         print(f"  {target / rel}")
     print("\nNext:")
     print(f"  pinlib check {design}")
-    print(f"  pinlib report {design} --html {shlex.quote(str(folder / 'review.html'))}")
-    print(f"  jupyter lab {shlex.quote(str(target))}")
+    print(f"  pinlib report {design} --html {shell_word(str(folder / 'review.html'))}")
+    print(f"  jupyter lab {shell_word(str(target))}")
     if not extras.installed("notebook"):
         print("  (the workbooks need the notebook extra: pip install 'pinlib[notebook]')")
     return 0
