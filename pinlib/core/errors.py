@@ -101,9 +101,12 @@ class PinlibError(Exception):
 
     @property
     def where(self) -> str:
-        parts = []
-        if self.file:
-            parts.append(self.file if self.line is None else f"{self.file}:{self.line}")
+        return self._place(self.file if self.line is None or not self.file
+                           else f"{self.file}:{self.line}")
+
+    def _place(self, file_or_line: str | None) -> str:
+        """The location: the file (or line) given, then the field."""
+        parts = [file_or_line] if file_or_line else []
         if self.field:
             parts.append(f"field '{_cut(self.field)}'")
         return ", ".join(parts)
@@ -116,15 +119,13 @@ class PinlibError(Exception):
 
         if not self.file or os.path.abspath(self.file) != os.path.abspath(str(path)):
             return self.message
-        inner = type(self)(self.problem, field=self.field, value=self.value,
-                           expected=self.expected, hint=self.hint)
-        text = inner.message
-        if self.line is None:
-            return text
-        return f"line {self.line}, {text}" if self.field else f"line {self.line}: {text}"
+        return self._located(self._place(None if self.line is None else f"line {self.line}"))
 
     @property
     def message(self) -> str:
+        return self._located(self.where)
+
+    def _located(self, where: str) -> str:
         text = self.problem
         if self.value is not None:
             text += f" (got {_echo(self.value)})"
@@ -132,7 +133,6 @@ class PinlibError(Exception):
             text += f"; expected {self.expected}"
         if self.hint:
             text += f"; {self.hint}"
-        where = self.where
         return f"{where}: {text}" if where else text
 
     def __str__(self) -> str:
