@@ -10,13 +10,16 @@ grid of :func:`edge_grid`), and solves the edges that share a chain of sections 
 call per group of time steps within :data:`STEP_RATIO` of each other, each edge on its
 own grid (:mod:`pinlib.physics.waveform.rowgrids`): the grid ``arange(n + 1) * dt`` of
 a record is the start of that grid lengthened to the batch's longest record, and the
-solver is causal, so each edge is the first samples of its row.  Each result goes into
+solver is causal, so each edge is the first samples of its row.  Each edge is first
+solved on its shorter first record, kept when the line is at rest by its end (as
+:func:`~pinlib.engines.pushline.waves.simulate_edge` keeps it); the edges that are not
+are solved again, batched the same way, on their whole grids.  Each result goes into
 the run's memo under the exact key :func:`~pinlib.engines.pushline.waves.simulate_edge`
 asks for, and the analyses made
 afterwards take it there, with the figures they will read off each edge (edge time,
 overshoot, undershoot, threshold crossings, re-crossings: :mod:`pinlib.engines.pushline.
 batchfigures`, read over the whole batch at once); an edge the prefetch did not solve (a
-lumped edge, a record that had not settled, a solve that warned, a series resistor
+lumped edge, a record not yet at rest, a solve that warned, a series resistor
 "auto" chose on a short line) the engine solves itself, as it would without the
 prefetch.  So every figure is the engine's, from the same grid and solver; only rounding
 inside a batched solve can differ (a few units in the last place).
@@ -47,7 +50,7 @@ from pinlib.engines.pushline.line import (
     line_stretches,
 )
 from pinlib.engines.pushline.termination import auto_ideal, chosen_series_resistor
-from pinlib.engines.pushline.waves import edge_grid, is_settled, unit_edge_key
+from pinlib.engines.pushline.waves import edge_grid, is_settled, keeps, unit_edge_key
 from pinlib.engines.readout import explained
 from pinlib.model.result import LineResult
 from pinlib.physics import driver as drv
@@ -100,40 +103,56 @@ def prefetch(inputs: Iterable[LineInputs]) -> int:
         if g.distributed:  # a lumped edge is a closed form, cheap on its own
             groups.setdefault(tuple(g.sections), []).append((key, g, r_source, t_ramp))
     stored = 0
-    for sections, members in groups.items():
-        members.sort(key=lambda m: -float(m[1].t[1]))  # by step, the coarsest first
-        start = 0
-        while start < len(members):
-            end = _batch_end(members, start)
-            stored += _solve(list(sections), members[start:end], uses)
-            start = end
+    for full in (False, True):  # first records, then the whole grids of those not at rest
+        left = {}
+        for sections, members in groups.items():
+            members.sort(key=lambda m: -float(m[1].t[1]))  # by step, the coarsest first
+            start = 0
+            while start < len(members):
+                end = _batch_end(members, start, full)
+                done, rest = _solve(list(sections), members[start:end], uses, full)
+                stored += done
+                if rest:
+                    left.setdefault(sections, []).extend(rest)
+                start = end
+        groups = left
     return stored
 
 
-def _batch_end(members: list, start: int) -> int:
+def _batch_end(members: list, start: int, full: bool) -> int:
     """The end of the batch from ``start`` (steps sorted from the coarsest): steps within
     :data:`STEP_RATIO` of the first, at most :data:`MAX_ELEMENTS` samples in all, each
     record padded to the batch's longest."""
     coarsest = float(members[start][1].t[1])
-    end, longest = start + 1, members[start][1].t.size
+    end, longest = start + 1, _length(members[start][1], full)
     while end < len(members):
         g = members[end][1]
-        longest = max(longest, g.t.size)
+        longest = max(longest, _length(g, full))
         if coarsest > STEP_RATIO * float(g.t[1]) or (end - start + 1) * longest > MAX_ELEMENTS:
             break
         end += 1
     return end
 
 
-def _solve(sections: list, batch: list, uses: dict) -> int:
+def _length(g, full: bool) -> int:
+    """Samples of an edge's first record, or of its whole grid (``full``)."""
+    return g.t.size if full else g.n_first
+
+
+def _solve(sections: list, batch: list, uses: dict, full: bool) -> tuple[int, list]:
     """One distributed solve of a batch of unit edges, each on its own grid padded to the
     longest record (:mod:`pinlib.physics.waveform.rowgrids`), and the figures read off
-    them (``uses``: per key, the :class:`EdgeUse` asked for)."""
-    n = max(g.t.size for _, g, _, _ in batch)
+    them (``uses``: per key, the :class:`EdgeUse` asked for).  Each record is the first
+    record :func:`~pinlib.engines.pushline.waves.simulate_edge` solves, kept as it keeps
+    it (:func:`~pinlib.engines.pushline.waves.keeps`), or (``full``) the whole grid it
+    solves next, kept when it settled; returns the edges stored and the members whose
+    first record was not at rest (the others are left to the engine)."""
+    n = max(_length(g, full) for _, g, _, _ in batch)
     dt = np.array([g.t[1] for _, g, _, _ in batch])
     t = np.arange(n)[None, :] * dt[:, None]  # each row its own arange(n) * dt
-    if not all(np.array_equal(t[j, :g.t.size], g.t) for j, (_, g, _, _) in enumerate(batch)):
-        return 0  # not the engine's grids: left to the engine
+    if not all(np.array_equal(t[j, :_length(g, full)], g.t[:_length(g, full)])
+               for j, (_, g, _, _) in enumerate(batch)):
+        return 0, []  # not the engine's grids: left to the engine
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
         try:
@@ -142,20 +161,24 @@ def _solve(sections: list, batch: list, uses: dict) -> int:
                 np.array([m[2] for m in batch]), sections,
                 np.array([m[1].c_lumped_far for m in batch])).v
         except PinlibError:
-            return 0
+            return 0, []
     if caught:
-        return 0  # the engine solves these itself, so that its notes carry the warning
-    stored, rows, grids = 0, [], {}
-    for j, (key, g, _, _) in enumerate(batch):
-        unit = v[j, :g.t.size]  # views of the batch (the engine copies what it keeps)
-        if is_settled(unit):
+        return 0, []  # the engine solves these itself, so that its notes carry the warning
+    stored, rows, grids, left = 0, [], {}, []
+    for j, member in enumerate(batch):
+        key, g = member[:2]
+        m = _length(g, full)
+        unit = v[j, :m]  # views of the batch (the engine copies what it keeps)
+        if is_settled(unit) if full else keeps(g, unit):
             # one grid per step, its records' grids views of it (as the batch's rows)
             grid = grids.setdefault(float(dt[j]), t[j].copy())
-            memo.keep(key, (grid[:g.t.size], unit, True))
+            memo.keep(key, (grid[:m], unit, True))
             stored += 1
-            rows.extend((j, g.t.size, key, use) for use in uses.get(key, ()))
+            rows.extend((j, m, key, use) for use in uses.get(key, ()))
+        elif not full and g.n_first < g.t.size:
+            left.append(member)
     store_figures(t if dt.size > 1 else t[0], v, rows)  # every row on its own grid
-    return stored
+    return stored, left
 
 
 def _analysis(li: LineInputs) -> tuple[LineAnalysis, dict] | None:

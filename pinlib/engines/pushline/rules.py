@@ -63,6 +63,19 @@ _SETTLE_TAUS = 12.0        # record length: ramp + this many RC time constants .
 _SETTLE_DELAYS = 60.0      # ... + this many one-way delays of the whole chain
 _SETTLED = 0.01            # the record must end within this fraction of the swing
 _MAX_EXTENSIONS = 4        # times the record is lengthened to settle
+# A chain's first record (waves.edge_grid): the first samples of the record above, long
+# enough for a line driven through about its impedance to come to rest: the ramp, a
+# round trip for each fall of the reflections to _FIRST_REFLECTION... of the worst
+# reflection coefficient (source, junctions) down to _AT_REST, _REST_TAUS time
+# constants of the far end's capacitance against the last section, and _REST_DELAYS
+# delays.  It is kept when those last delays stay within _AT_REST of the final level,
+# far below the 1e-12 of the level that the overshoot and undershoot read as rounding,
+# so every figure read off it is the longer record's; else the longer record is solved.
+# Lines with a worse reflection than _FIRST_REFLECTION ring for longer: no first record.
+_FIRST_REFLECTION = 0.2
+_REST_TAUS = 33.0          # e^-33 < _AT_REST
+_REST_DELAYS = 4.0         # two round trips of the whole chain
+_AT_REST = 1e-14           # of the swing
 _REF_LEVEL = 0.5           # datasheet timing reference level, fraction of the swing
 # Figures of every line, in their order in the result.
 _FIGURE_UNITS = (("load_capacitance", "F"), ("trace_delay", "s"), ("z0", "Ω"),

@@ -15,8 +15,12 @@ from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
 from pinlib.engines import memo
 from pinlib.engines.pushline.rules import (
+    _AT_REST,
+    _FIRST_REFLECTION,
     _MAX_EXTENSIONS,
     _MAX_STEPS,
+    _REST_DELAYS,
+    _REST_TAUS,
     _SETTLE_DELAYS,
     _SETTLE_TAUS,
     _SETTLED,
@@ -133,7 +137,18 @@ def simulate_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float,
     ``v_from + (v_to - v_from) u(t)`` with ``u`` the unit response of the same circuit.
     The record runs for the ramp, 12 time constants of ``r_source`` into the whole
     capacitance and (distributed) 60 one-way delays, lengthened until it ends within
-    1 % of the swing.  The step is :func:`pinlib.physics.waveform.choose_step`'s: 1/20
+    1 % of the swing.  A chain driven through about its impedance (every reflection
+    coefficient, at the source and between sections, at most 0.2) is first solved on
+    a shorter record, the first samples of that one (the solver is causal: the same
+    numbers to the last bit): the ramp, a round trip for each fall of the worst
+    reflection until it is below 1e-14, 33 time constants of the far end's capacitance
+    against the last section, and two more round trips.  When those last two round
+    trips stay within 1e-14 of the final level, the line is at rest and the shorter
+    record is kept: what follows could move an overshoot or undershoot only within the
+    1e-12 of its level that they read as rounding, so every figure is the longer
+    record's.  A series-terminated line comes to rest in about half the longer
+    record.
+    The step is :func:`pinlib.physics.waveform.choose_step`'s: 1/20
     of the shortest section delay, of the ramp or of the far end's time constant
     against the last section (``z0 c_far``), dividing the shortest delay exactly (over
     the ngspice case set of ``tests/test_tree_spice.py`` every edge within 0.02 %); a
@@ -230,6 +245,12 @@ class EdgeGrid:
         Whether the chain of lines is solved. [1]
     t_end : float
         The record's length asked for. [s]
+    n_first : int
+        Samples of the first record, the first of ``t`` (all of them when there is no
+        shorter first record: a lumped edge, a lengthened record). [1]
+    rest : int
+        The first record's last samples that must stay at rest for it to be kept
+        (:func:`at_rest`); 0 without a first record. [1]
     """
 
     t: np.ndarray
@@ -238,12 +259,15 @@ class EdgeGrid:
     c_total: float
     distributed: bool
     t_end: float
+    n_first: int
+    rest: int
 
 
 def edge_grid(stretches: Sequence[Stretch], r_source: float, t_ramp: float, c_far: float,
               distributed: bool, t_end: float | None = None) -> EdgeGrid:
     """The grid :func:`simulate_edge` solves a unit edge on (see its notes): the record's
-    first length unless ``t_end`` is given (each lengthening multiplies it by 3)."""
+    first length unless ``t_end`` is given (each lengthening multiplies it by 3), with
+    the shorter first record of a chain of lines within it."""
     c_line = sum(s.c for s in stretches)
     c_total = c_line + c_far
     tau = r_source * c_total
@@ -251,6 +275,7 @@ def edge_grid(stretches: Sequence[Stretch], r_source: float, t_ramp: float, c_fa
     c_lumped_far = c_far + sum(s.c for s in stretches if s.td <= 0.0)
     delays = [td for _, td in sections]
     distributed = distributed and bool(sections)
+    first = distributed and t_end is None
     if t_end is None:
         t_end = t_ramp + _SETTLE_TAUS * tau + (_SETTLE_DELAYS * sum(delays) if distributed
                                                else 0.0)
@@ -263,7 +288,40 @@ def edge_grid(stretches: Sequence[Stretch], r_source: float, t_ramp: float, c_fa
     if distributed:
         d_min = min(delays)
         dt = d_min / math.ceil(d_min / dt)
-    return EdgeGrid(_grid(t_end, dt), sections, c_lumped_far, c_total, distributed, t_end)
+    t = _grid(t_end, dt)
+    t_first = _first_length(sections, r_source, t_ramp, c_lumped_far) if first else None
+    n_first = None if t_first is None else _same_step(t, math.ceil(t_first / dt) + 1)
+    if n_first is None:
+        return EdgeGrid(t, sections, c_lumped_far, c_total, distributed, t_end, t.size, 0)
+    return EdgeGrid(t, sections, c_lumped_far, c_total, distributed, t_end, n_first,
+                    math.ceil(_REST_DELAYS * sum(delays) / dt))
+
+
+def _same_step(t: np.ndarray, n: int) -> int | None:
+    """The first length from ``n`` whose samples of ``t`` give the solver the step the
+    whole of ``t`` gives it (it reads the step off a grid's last sample, which can move
+    it by a unit in the last place), or None (none within a few samples, or not
+    shorter than ``t``)."""
+    whole = t[-1] / (t.size - 1)
+    for m in range(n, min(n + 64, t.size - 1)):
+        if t[m - 1] / (m - 1) == whole:
+            return m
+    return None
+
+
+def _first_length(sections: list, r_source: float, t_ramp: float,
+                  c_far: float) -> float | None:
+    """The first record's length (see :func:`simulate_edge`), or None for a chain whose
+    source or junctions reflect more than ``_FIRST_REFLECTION`` (it rings for longer)."""
+    z = [z0 for z0, _ in sections]
+    worst = max([abs(r_source - z[0]) / (r_source + z[0])]
+                + [abs(b - a) / (a + b) for a, b in zip(z[:-1], z[1:], strict=True)])
+    if not worst <= _FIRST_REFLECTION:  # also NaN
+        return None
+    rounds = 1 + (math.ceil(math.log(_AT_REST) / math.log(worst)) if worst > 0.0 else 0)
+    trip = 2.0 * sum(td for _, td in sections)
+    return (t_ramp + rounds * trip + _REST_TAUS * z[-1] * c_far
+            + _REST_DELAYS / 2.0 * trip)
 
 
 def is_settled(unit: np.ndarray) -> bool:
@@ -271,11 +329,31 @@ def is_settled(unit: np.ndarray) -> bool:
     return bool(abs(unit[-1] - 1.0) <= _SETTLED)
 
 
+def keeps(g: EdgeGrid, unit: np.ndarray) -> bool:
+    """Whether :func:`simulate_edge` keeps ``unit``, solved on ``g``'s first record
+    (``g.t[:g.n_first]``): at rest when it is shorter than the grid, else settled."""
+    return at_rest(unit, g.rest) if g.n_first < g.t.size else is_settled(unit)
+
+
+def at_rest(unit: np.ndarray, rest: int) -> bool:
+    """Whether the last ``rest`` samples of a unit response stay within ``_AT_REST``
+    of its final level (:func:`simulate_edge`'s first record)."""
+    return bool(unit.size > rest and np.max(np.abs(unit[-rest:] - 1.0)) <= _AT_REST)
+
+
 def _unit_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float, c_far: float,
                distributed: bool) -> tuple[np.ndarray, np.ndarray, bool]:
     """The time grid, the unit response (0 -> 1) at the far end and whether it settled,
     for :func:`simulate_edge` (which the level of the edge only scales and shifts)."""
     g = edge_grid(stretches, r_source, t_ramp, c_far, distributed)
+    if g.n_first < g.t.size:  # the first record, kept when the line is at rest
+        t = g.t[:g.n_first].copy()
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")  # a warning is left to the longer solve
+            unit = wf.distributed_response(t, 1.0, t_ramp, r_source, g.sections,
+                                           g.c_lumped_far).v
+        if not caught and keeps(g, unit):
+            return t, unit, True
     for _ in range(_MAX_EXTENSIONS + 1):
         if g.distributed:
             unit = wf.distributed_response(g.t, 1.0, t_ramp, r_source, g.sections,
@@ -294,12 +372,12 @@ def solve_edges(stretches: Sequence[Stretch], requests: Sequence[tuple]) -> None
     to ask for on one line: ``requests`` holds ``(r_source, t_ramp, c_far,
     distributed)`` of each (a driver's rise and fall).
 
-    The distributed edges not yet held, on the first grid :func:`_unit_edge` takes,
+    The distributed edges not yet held, on the first record :func:`_unit_edge` takes,
     are marched together (:func:`pinlib.physics.waveform.distributed_responses`: each
-    record the single solve's to the last bit); each that settled is kept under its
-    key.  Nothing is kept from a solve that warned or refused (the engine then solves
-    and reports it itself), and nothing is done outside a run or for fewer than two
-    edges to solve.
+    record the single solve's to the last bit); each that :func:`_unit_edge` would
+    keep (:func:`keeps`) is kept under its key.  Nothing is kept from a solve that
+    warned or refused (the engine then solves and reports it itself), and nothing is
+    done outside a run or for fewer than two edges to solve.
     """
     if not memo.active():
         return
@@ -313,17 +391,18 @@ def solve_edges(stretches: Sequence[Stretch], requests: Sequence[tuple]) -> None
         except PinlibError:
             return
         if g.distributed:
-            todo[key] = (g.t, 1.0, t_ramp, r_source, g.sections, g.c_lumped_far)
+            todo[key] = (g.t[:g.n_first].copy(), 1.0, t_ramp, r_source, g.sections,
+                         g.c_lumped_far, g)
     if len(todo) < 2:
         return
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
         try:
-            got = wf.distributed_responses(list(todo.values()))
+            got = wf.distributed_responses([case[:-1] for case in todo.values()])
         except PinlibError:
             return
     if caught:
         return
     for (key, case), w in zip(todo.items(), got, strict=True):
-        if is_settled(w.v):
+        if keeps(case[-1], w.v):
             memo.keep(key, (case[0], w.v, True))
