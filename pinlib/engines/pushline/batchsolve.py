@@ -50,7 +50,7 @@ from pinlib.engines.pushline.line import (
     line_stretches,
 )
 from pinlib.engines.pushline.termination import auto_ideal, chosen_series_resistor
-from pinlib.engines.pushline.waves import edge_grid, is_settled, keeps, unit_edge_key
+from pinlib.engines.pushline.waves import edge_grid, keeps, unit_edge_key
 from pinlib.engines.readout import explained
 from pinlib.model.result import LineResult
 from pinlib.physics import driver as drv
@@ -145,7 +145,7 @@ def _solve(sections: list, batch: list, uses: dict, full: bool) -> tuple[int, li
     them (``uses``: per key, the :class:`EdgeUse` asked for).  Each record is the first
     record :func:`~pinlib.engines.pushline.waves.simulate_edge` solves, kept as it keeps
     it (:func:`~pinlib.engines.pushline.waves.keeps`), or (``full``) the whole grid it
-    solves next, kept when it settled; returns the edges stored and the members whose
+    solves next, kept as it keeps that; returns the edges stored and the members whose
     first record was not at rest (the others are left to the engine)."""
     n = max(_length(g, full) for _, g, _, _ in batch)
     dt = np.array([g.t[1] for _, g, _, _ in batch])
@@ -169,7 +169,7 @@ def _solve(sections: list, batch: list, uses: dict, full: bool) -> tuple[int, li
         key, g = member[:2]
         m = _length(g, full)
         unit = v[j, :m]  # views of the batch (the engine copies what it keeps)
-        if is_settled(unit) if full else keeps(g, unit):
+        if keeps(g, unit):
             # one grid per step, its records' grids views of it (as the batch's rows)
             grid = grids.setdefault(float(dt[j]), t[j].copy())
             memo.keep(key, (grid[:m], unit, True))

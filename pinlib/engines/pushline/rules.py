@@ -65,13 +65,13 @@ _SETTLED = 0.01            # the record must end within this fraction of the swi
 _MAX_EXTENSIONS = 4        # times the record is lengthened to settle
 # A chain's first record (waves.edge_grid): the first samples of the record above, long
 # enough for a line driven through about its impedance to come to rest: the ramp, a
-# round trip for each fall of the reflections to _FIRST_REFLECTION... of the worst
-# reflection coefficient (source, junctions) down to _AT_REST, _REST_TAUS time
-# constants of the far end's capacitance against the last section, and _REST_DELAYS
-# delays.  It is kept when those last delays stay within _AT_REST of the final level,
-# far below the 1e-12 of the level that the overshoot and undershoot read as rounding,
-# so every figure read off it is the longer record's; else the longer record is solved.
-# Lines with a worse reflection than _FIRST_REFLECTION ring for longer: no first record.
+# round trip for each time the worst reflection coefficient (source, junctions)
+# multiplies what is left until it is below _AT_REST, _REST_TAUS time constants of the
+# far end's capacitance against the last section, and _REST_DELAYS delays.  It is kept
+# when those last delays stay within _AT_REST of the final level, far below the 1e-12
+# of the level that the overshoot and undershoot read as rounding, so every figure read
+# off it is the longer record's; else the longer record is solved.  Lines with a worse
+# reflection than _FIRST_REFLECTION ring for longer: no first record.
 _FIRST_REFLECTION = 0.2
 _REST_TAUS = 33.0          # e^-33 < _AT_REST
 _REST_DELAYS = 4.0         # two round trips of the whole chain

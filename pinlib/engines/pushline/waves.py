@@ -330,9 +330,10 @@ def is_settled(unit: np.ndarray) -> bool:
 
 
 def keeps(g: EdgeGrid, unit: np.ndarray) -> bool:
-    """Whether :func:`simulate_edge` keeps ``unit``, solved on ``g``'s first record
-    (``g.t[:g.n_first]``): at rest when it is shorter than the grid, else settled."""
-    return at_rest(unit, g.rest) if g.n_first < g.t.size else is_settled(unit)
+    """Whether :func:`simulate_edge` keeps ``unit``, solved on the first samples of
+    ``g.t``: at rest when it is shorter than the grid (the first record), else
+    settled."""
+    return at_rest(unit, g.rest) if unit.size < g.t.size else is_settled(unit)
 
 
 def at_rest(unit: np.ndarray, rest: int) -> bool:
@@ -391,18 +392,18 @@ def solve_edges(stretches: Sequence[Stretch], requests: Sequence[tuple]) -> None
         except PinlibError:
             return
         if g.distributed:
-            todo[key] = (g.t[:g.n_first].copy(), 1.0, t_ramp, r_source, g.sections,
-                         g.c_lumped_far, g)
+            todo[key] = (g, (g.t[:g.n_first].copy(), 1.0, t_ramp, r_source, g.sections,
+                             g.c_lumped_far))
     if len(todo) < 2:
         return
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
         try:
-            got = wf.distributed_responses([case[:-1] for case in todo.values()])
+            got = wf.distributed_responses([case for _, case in todo.values()])
         except PinlibError:
             return
     if caught:
         return
-    for (key, case), w in zip(todo.items(), got, strict=True):
-        if keeps(case[-1], w.v):
+    for (key, (g, case)), w in zip(todo.items(), got, strict=True):
+        if keeps(g, w.v):
             memo.keep(key, (case[0], w.v, True))
