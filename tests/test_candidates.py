@@ -229,6 +229,27 @@ def test_batched_edges_are_the_engines_own(monkeypatch):
     assert_same_ranking(fast, cand.rank_candidates(DEMO_DESIGN, "U12"))
 
 
+def test_one_at_a_time_solves_each_edge_once_per_candidate(monkeypatch):
+    # each candidate is evaluated in one run, as `pinlib check` evaluates a design: an
+    # edge its bus analyses twice (the corners of its tolerances, the budget) is solved
+    # once for it, and nothing solved for one candidate is kept for the next
+    from pinlib.engines.pushline import waves
+
+    solved = []
+    unit_edge = waves._unit_edge
+
+    def counted(*args):
+        solved.append(waves.unit_edge_key(*args))
+        return unit_edge(*args)
+
+    monkeypatch.setattr(waves, "_unit_edge", counted)
+    places = cand._per_bus(cand.positions(DEMO_DESIGN, "U7"))  # the flash: tolerances
+    part = DEMO_DESIGN.library.parts[places[0][1].part_id]
+    for _ in range(2):
+        cand._one(DEMO_DESIGN, "U7", part, places)
+    assert solved and len(set(solved)) == len(solved) // 2  # once each, in each of 2 runs
+
+
 def test_categories_and_errors():
     r = cand.rank_candidates(DEMO_DESIGN, "U4", categories=["memory", "clock"])
     assert {c.category for c in r.candidates} <= {"memory", "clock"}

@@ -41,6 +41,7 @@ from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS
 from pinlib.core.quantity import format_si
 from pinlib.core.texttable import fit_table
 from pinlib.core.valueclass import value_class
+from pinlib.engines import memo
 from pinlib.engines import opendrain as od
 from pinlib.engines.opendrain import batch as ob
 from pinlib.library.schema import CATEGORIES, Part
@@ -365,12 +366,15 @@ def _failed(part: Part, current: str, method: str, err: PinlibError) -> Candidat
 
 def _one(design: Design, ref: str, part: Part, places, buses=None):
     """Engine results of the buses in ``buses`` (all places by default) with the part
-    in the position."""
+    in the position, evaluated in one run as :func:`~pinlib.engines.dispatch.
+    check_design` evaluates a design (a waveform solved twice for the candidate is
+    solved once; nothing is kept for the next)."""
     from pinlib.engines.dispatch import evaluate_bus
 
     swapped = design.with_parts({ref: part.id})
-    return [evaluate_bus(swapped.bus(bus.id), swapped) for bus, _ in places
-            if buses is None or bus.id in buses]
+    with memo.run_scope(), memo.transient():
+        return [evaluate_bus(swapped.bus(bus.id), swapped) for bus, _ in places
+                if buses is None or bus.id in buses]
 
 
 # ============================================================================ ranking
