@@ -56,9 +56,15 @@ def evaluate_bus(bus: Bus, design: Design) -> BusResult:
     the bus's supply, a geometry the line formulas refuse) is raised again naming where
     it comes from: the part file and line of the pin's value, or the design file and the
     line of the bus.
+
+    The bus is evaluated in a :func:`pinlib.engines.memo.run_scope` (joining the
+    caller's, as :func:`check_design` opens one for all its buses): a waveform its
+    analyses solve with identical inputs twice (a tolerance corner, the timing budget)
+    is solved once.
     """
     try:
-        return engine(bus.protocol).evaluate_bus(bus, design)
+        with run_scope():
+            return engine(bus.protocol).evaluate_bus(bus, design)
     except PinlibError as err:
         if err.file is not None:
             raise
