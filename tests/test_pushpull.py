@@ -335,6 +335,16 @@ def test_ringing_fails_on_the_clock_and_warns_on_data(lib):
     assert ok.result.check("ringing").status == "pass"
 
 
+def test_undershoot_beyond_its_inferred_limit_warns(lib):
+    # the part format records only the upper abs_max: the low limit is inferred from it
+    # (at most 0.5 V below ground), a rule of thumb, so a dip beyond it warns
+    a = controller_line(lib, [trace50(0.2)], signal="sclk", part="pp-ctrl-asym")
+    under = a.result.check("undershoot")
+    assert under.value > under.limit and under.margin < 0
+    assert under.status == "warn" and under.details["rule_of_thumb"] is True
+    assert "a warning, not a failure" in under.message
+
+
 def test_overshoot_and_levels_at_the_receivers_own_supply(lib):
     # derived: abs_max VDD + 0.5 V at the receiver's 2.5 V allows 0.5 V above 2.5 V;
     # VIH 0.7 VDD = 1.75 V, VIL 0.3 VDD = 0.75 V at 2.5 V

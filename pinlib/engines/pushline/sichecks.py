@@ -91,10 +91,11 @@ def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
             f"at {_fmt(p.vdd, 'V')}: {_fmt(above, 'V')} above its supply, "
             f"{_fmt(allowed, 'V')} allowed{corner}", warn_margin=warn, subject=p.ref,
             details={"peak": peak, "abs_max": abs_max, "supply": p.vdd}),
-        check_max(
+        # the part format records the upper rating only: the low limit is inferred
+        rule_of_thumb(check_max(
             "undershoot", dip, low_allowed, "V", f"{UNDERSHOOT_RULE}; {p.source('abs_max')}",
             f"dip to {_fmt(-dip, 'V')} at {p.label}; {_fmt(low_allowed, 'V')} below ground "
-            f"allowed{corner}", warn_margin=warn, subject=p.ref),
+            f"allowed{corner}", warn_margin=warn, subject=p.ref)),
     ]
 
 
