@@ -290,6 +290,22 @@ def test_swap_part_over_designs_reports_and_writes_only_what_was_not_refused(
     assert b.read_text(encoding="utf-8") == before[b]
 
 
+@pytest.mark.parametrize("cols", [60, 80])
+def test_swap_over_designs_fits_the_terminal(tmp_path, capsys, monkeypatch, cols):
+    # each design's line, its status changes and the closing count wrap to COLUMNS,
+    # with the path, the statuses and the part change kept on the first line
+    monkeypatch.chdir(tmp_path)
+    _board(tmp_path, "a-board-with-a-rather-long-file-name.toml")
+    _board(tmp_path, "b.toml")
+    monkeypatch.setenv("COLUMNS", str(cols))
+    main(["swap", "--part", "eeprom-i2c=io-expander-legacy-5v", "*.toml"])
+    lines = capsys.readouterr().out.splitlines()
+    assert max(len(ln) for ln in lines) <= cols
+    first = next(ln for ln in lines if ln.startswith("a-board"))
+    assert "WARN → FAIL" in first
+    assert any(ln.startswith("2 design(s): 2 changed") for ln in lines)
+
+
 def test_swap_over_designs_refuses_mixed_forms(tmp_path, capsys):
     a = _board(tmp_path, "a.toml")
     assert main(["swap", str(a), "U4=rtc-i2c", "--part", "eeprom-i2c=rtc-i2c"]) == 2

@@ -90,9 +90,12 @@ def _swap_lines(s, width: int) -> list[str]:
     return out
 
 
-def format_swaps(summaries, parts: dict, *, write: bool) -> str:
+def format_swaps(summaries, parts: dict, *, write: bool, cols: int | None = None) -> str:
     """``pinlib swap --part OLD=NEW DESIGN...``: a line per design (and the checks whose
-    status changed, or the reasons for a refusal), then the counts."""
+    status changed, or the reasons for a refusal), then the counts; ``cols``: characters
+    per line (None: no limit), each line wrapped with its continuation indented."""
+    from pinlib.present.terminal import wrap
+
     width = max(len(s.path) for s in summaries)
     pairs = ", ".join(f"{o} → {n}" for o, n in parts.items())
     out = [f"Substitution: {pairs}", ""]
@@ -107,4 +110,8 @@ def format_swaps(summaries, parts: dict, *, write: bool) -> str:
     out.append(f"{len(summaries)} design(s): {n['swapped']} changed ({failing} failing after), "
                f"{n['refused']} refused, {n['unused']} without the part, "
                f"{n['error']} not checked{tail}")
+    if cols is not None:
+        out = [w for line in out
+               for w in (wrap(line.lstrip(), cols, line[:len(line) - len(line.lstrip())])
+                         if len(line) > cols else [line])]
     return "\n".join(out) + "\n"

@@ -377,5 +377,7 @@ def _run_many(args) -> int:
                   sys.stdout, indent=2, ensure_ascii=False)
         sys.stdout.write("\n")
     else:
-        sys.stdout.write(format_swaps(summaries, parts, write=args.write))
+        from pinlib.present.terminal import table_width
+
+        sys.stdout.write(format_swaps(summaries, parts, write=args.write, cols=table_width()))
     return max(s.exit_code for s in summaries)
