@@ -276,3 +276,35 @@ def test_every_invalid_field_of_a_design_named_in_one_run(tmp_path, capsys):
     assert [line.split(", field ")[0].rsplit(":", 1)[1] for line in lines[1:]] == \
         ["7", "8", "12"]
     assert all(line.startswith("pinlib: also: ") for line in lines[1:])
+
+
+BAD_PART = """format = "pinlib.design/1"
+title = "x"
+[[bus]]
+id = "a"
+protocol = "spi"
+supply = "3.3 V"
+devices = [{ ref = "U1", part = "no-such-part-with-a-rather-long-name-here", role = "controller" }]
+"""
+
+
+def test_errors_wrap_to_the_terminal_and_stay_whole_in_a_pipe(tmp_path, capsys,
+                                                              monkeypatch):
+    # at COLUMNS=80 an error (and argparse's own) wraps with its continuation indented,
+    # the first line still "file:line, field"; piped, without COLUMNS, each is one line
+    monkeypatch.chdir(tmp_path)
+    path = Path("bad.toml")
+    path.write_text(BAD_PART, encoding="utf-8")
+    monkeypatch.setenv("COLUMNS", "80")
+    assert main(["check", str(path)]) == 2
+    lines = capsys.readouterr().err.splitlines()
+    assert len(lines) > 1 and max(len(ln) for ln in lines) <= 80
+    assert lines[0].startswith("pinlib: error: bad.toml:7, field")
+    assert all(ln.startswith("    ") for ln in lines[1:])
+    with pytest.raises(SystemExit):
+        main(["chek"])
+    err = capsys.readouterr().err.splitlines()
+    assert max(len(ln) for ln in err) <= 80 and err[1].startswith("pinlib: error:")
+    monkeypatch.delenv("COLUMNS")
+    assert main(["check", str(path)]) == 2  # stderr captured: not a terminal
+    assert len(capsys.readouterr().err.splitlines()) == 1

@@ -51,12 +51,22 @@ the real board. Standards, local codes and licensed practice prevail.
 """
 
 
+class _Parser(argparse.ArgumentParser):
+    """argparse's parser, its usage errors wrapped to a terminal as pinlib's own."""
+
+    def error(self, message: str):
+        from pinlib.present.terminal import fitted
+
+        self.print_usage(sys.stderr)
+        self.exit(2, fitted(f"{self.prog}: error: {message}", sys.stderr) + "\n")
+
+
 def build_parser(only: str | None = None) -> argparse.ArgumentParser:
     """The program's parser: every command's own arguments, or with ``only`` (a command's
     name) that command's alone, the others standing as their name and :data:`SUMMARIES`
     line (all that ``pinlib --help`` and an unknown command's error show of them), so that
     a command imports no other command's module."""
-    parser = argparse.ArgumentParser(
+    parser = _Parser(
         prog="pinlib",
         description="Pin characteristics library and bus budgets for I2C, SMBus, SPI and GPIO.",
         epilog=EPILOG,
@@ -162,12 +172,17 @@ ALSO_SHOWN = 9
 
 
 def _print_error(err: PinlibError) -> None:
-    """The error, then the further problems found with it (at most :data:`ALSO_SHOWN`)."""
-    print(f"pinlib: error: {err.message}", file=sys.stderr)
-    for other in err.also[:ALSO_SHOWN]:
-        print(f"pinlib: also: {other.message}", file=sys.stderr)
+    """The error, then the further problems found with it (at most :data:`ALSO_SHOWN`),
+    each wrapped to a terminal (its first line keeps ``file:line, field``; output to a
+    file or a pipe keeps each whole, one line a problem)."""
+    from pinlib.present.terminal import fitted
+
+    lines = [f"pinlib: error: {err.message}"]
+    lines += [f"pinlib: also: {other.message}" for other in err.also[:ALSO_SHOWN]]
     if len(err.also) > ALSO_SHOWN:
-        print(M.FURTHER_PROBLEMS.format(n=len(err.also) - ALSO_SHOWN), file=sys.stderr)
+        lines.append(M.FURTHER_PROBLEMS.format(n=len(err.also) - ALSO_SHOWN))
+    for line in lines:
+        print(fitted(line, sys.stderr), file=sys.stderr)
 
 
 if __name__ == "__main__":  # pragma: no cover

@@ -23,7 +23,7 @@ import sys
 import textwrap
 
 __all__ = ["DEFAULT_WIDTH", "MIN_WIDTH", "columns", "width", "use_colour", "status_word", "wrap",
-           "shell_word"]
+           "fitted", "shell_word"]
 
 #: Columns when standard output is not a terminal and COLUMNS is not set.
 DEFAULT_WIDTH = 80
@@ -35,6 +35,8 @@ MIN_WIDTH = 40
 _GLUE = re.compile(r"(?<=\d) (?=[^\W\d_]|%|Ω|µ|°)|(?<=[≤≥−+]) (?=\d)"
                    r"|(?<=[^\W\d_]) (?=[+−-]?\d)")
 _NBSP = "\u00a0"
+#: A message's program and kind ("pinlib: error: ") and the word after them.
+_HEAD = re.compile(r"^[\w-]+: [\w-]+: \S+")
 
 _WORDS = {"pass": "PASS", "warn": "WARN", "fail": "FAIL"}
 #: SGR codes: green, yellow, bold red.
@@ -103,6 +105,20 @@ def wrap(text: str, cols: int, indent: str = "", subsequent: str = "    ") -> li
     lines = textwrap.wrap(glued, max(10, cols), initial_indent=indent,
                           subsequent_indent=indent + subsequent, break_on_hyphens=False)
     return [ln.replace(_NBSP, " ") for ln in lines] or [indent.rstrip()]
+
+
+def fitted(line: str, stream=None) -> str:
+    """``line`` wrapped to the width of ``stream`` (standard output by default) when it is
+    a terminal or COLUMNS is set (:func:`table_width`), continuation lines indented;
+    whole for a file or a pipe, where a message stays one line (``file:line, field``
+    first, as tools read it)."""
+    cols = table_width(stream)
+    if not cols or len(line) <= cols:
+        return line
+    # "pinlib: error: " stays with the file it names
+    head = _HEAD.match(line)
+    glued = line if head is None else head.group(0).replace(" ", _NBSP) + line[head.end():]
+    return "\n".join(ln.replace(_NBSP, " ") for ln in wrap(glued, cols))
 
 
 #: The characters a shell word keeps unquoted: ``shlex.quote``'s (``\w`` in ASCII and

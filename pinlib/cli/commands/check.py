@@ -147,12 +147,14 @@ def _run_many(args, paths) -> int:
     summaries = check_many(paths, args.library, jobs=args.jobs,
                            against_snapshots=args.against_snapshots,
                            threshold=args.threshold, progress=progress)
+    from pinlib.present.terminal import fitted
+
     for s in summaries:
         if s.error is not None:
-            print("pinlib: error: " + M.DESIGN_NOT_LOADED.format(
-                path=s.path, message=s.error_here or s.error), file=sys.stderr)
+            print(fitted("pinlib: error: " + M.DESIGN_NOT_LOADED.format(
+                path=s.path, message=s.error_here or s.error), sys.stderr), file=sys.stderr)
         for note in s.notes:
-            print(f"pinlib: warning: {s.path}: {note}", file=sys.stderr)
+            print(fitted(f"pinlib: warning: {s.path}: {note}", sys.stderr), file=sys.stderr)
     if args.json:
         json.dump([_many_json(s) for s in summaries], sys.stdout, indent=2, ensure_ascii=False)
         sys.stdout.write("\n")

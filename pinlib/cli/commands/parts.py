@@ -578,8 +578,10 @@ def _run_check(args) -> int:
                           "problems": [p.to_dict() for p in problems]},
                          indent=2, ensure_ascii=False))
     else:
+        from pinlib.present.terminal import fitted
+
         for p in problems:
-            print(p.message)
+            print(fitted(p.message))
         n = len(problems)
         verdict = "no problems" if not n else f"{n} problem{'s' if n != 1 else ''}"
         print(f"checked {n_files} file{'s' if n_files != 1 else ''} in {scope}: {verdict}")

@@ -44,9 +44,11 @@ def run_used_by(args, load) -> int:
     else:
         paths = [p for p in _toml_files_here() if is_design_file(p)]
     uses, errors = used_by(args.id, paths, args.library)
+    from pinlib.present.terminal import fitted
+
     for e in errors:
-        print("pinlib: error: " + M.DESIGN_NOT_LOADED.format(path=e["path"], message=e["error"]),
-              file=sys.stderr)
+        print(fitted("pinlib: error: " + M.DESIGN_NOT_LOADED.format(
+            path=e["path"], message=e["error"]), sys.stderr), file=sys.stderr)
     if args.json:
         out = {"part": args.id, "uses": uses, "errors": errors}
         sys.stdout.write(json.dumps(out, indent=2, ensure_ascii=False) + "\n")

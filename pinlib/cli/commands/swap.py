@@ -229,12 +229,14 @@ def _fitted(lines: list[str]) -> str:
 
 def _report_refusals(args, design, refused: list[dict]) -> int:
     """Say why each substitution is refused (the design is left as it is): exit 2."""
+    from pinlib.present.terminal import fitted
+
     for r in refused:
-        print("pinlib: error: " + M.SWAP_REFUSED.format(ref=r["ref"], new=r["new"],
-                                                        old=r["old"]) + ":",
-              file=sys.stderr)
+        print(fitted("pinlib: error: " + M.SWAP_REFUSED.format(ref=r["ref"], new=r["new"],
+                                                               old=r["old"]) + ":",
+                     sys.stderr), file=sys.stderr)
         for reason in r["reasons"]:
-            print(f"  - {reason}", file=sys.stderr)
+            print(fitted(f"  - {reason}", sys.stderr), file=sys.stderr)
     print("pinlib: " + M.DESIGN_NOT_CHANGED.format(path=args.design), file=sys.stderr)
     if args.json:
         json.dump({"format": "pinlib.swap/1", "design": design.title,
@@ -369,8 +371,10 @@ def _run_many(args) -> int:
             except PinlibError as err:
                 s.status, s.error = "error", err.message
         if s.error is not None:
-            print("pinlib: error: " + M.DESIGN_NOT_LOADED.format(path=s.path, message=s.error),
-                  file=sys.stderr)
+            from pinlib.present.terminal import fitted
+
+            print(fitted("pinlib: error: " + M.DESIGN_NOT_LOADED.format(
+                path=s.path, message=s.error), sys.stderr), file=sys.stderr)
     if args.json:
         json.dump({"format": "pinlib.swaps/1", "parts": parts, "write": args.write,
                    "designs": [s.to_json() for s in summaries]},
