@@ -71,6 +71,29 @@ def test_new_lists_gpio_pins_and_parts_on_no_bus(tmp_path):
     assert [b.protocol for b in design.buses] == ["i2c", "spi"]
 
 
+@pytest.mark.parametrize("bridge", ["level-translator-mosfet", "i2c-repeater"])
+def test_new_puts_parts_on_another_rail_across_a_bridge(tmp_path, capsys, bridge):
+    # a 1.8 V sensor with a 3.3 V controller and a bridging part: two segments, the
+    # bridge in both (its lower-supply side a facing the 1.8 V rail), each part on the
+    # rail it runs from, so the starter checks without a supply-range failure
+    path = tmp_path / "board.toml"
+    assert main(["new", str(path), "--part", "U1=mcu-3v3", "--part", f"Q1={bridge}",
+                 "--part", "U3=temp-humidity-sensor", "--part", "U4=eeprom-i2c"]) == 0
+    assert "On no bus" not in path.read_text(encoding="utf-8")
+    bus = load_design(path).bus("i2c")
+    segs = {s.id: s for s in bus.segments}
+    assert list(segs) == ["near-3v3", "far-1v8"]
+    assert sorted(d.ref for d in segs["near-3v3"].devices) == ["Q1", "U1", "U4"]
+    assert sorted(d.ref for d in segs["far-1v8"].devices) == ["Q1", "U3"]
+    assert {d.side for d in segs["far-1v8"].devices if d.ref == "Q1"} == {"a"}
+    assert float(segs["far-1v8"].supply) == pytest.approx(1.8, rel=1e-12)
+    assert main(["check", str(path), "--json"]) in (0, 1)
+    got = json.loads(capsys.readouterr().out)
+    ranges = [c for b in got["buses"] for s in b["segments"] for c in s["checks"]
+              if c["id"] == "supply-range"]
+    assert ranges and all(c["status"] != "fail" for c in ranges)
+
+
 # ---------------------------------------------------------------- schema
 def _validator(kind: str):
     import jsonschema

@@ -4,9 +4,13 @@ Each placed part offers pin functions (:attr:`pinlib.library.schema.Part.functio
 each protocol of :mod:`pinlib.core.protocols` whose named signals some part serves gets
 one bus, holding every part that serves it.  Protocols that use the same pin functions
 (I2C and SMBus) give one bus, of the first such protocol in the table; its comment names
-the others.  GPIO lines are named freely, so they are listed in a comment rather than
-guessed.  The values written (rail, trace, clock) are placeholders a designer replaces;
-the file says so beside each one, and it loads and checks as it is.
+the others.  An open-drain bus with one bridging part (a translator, a repeater) and parts
+that do not all run from the controller's rail gets two segments across it: the
+controller's rail and the parts that run from it, and the others on the rail of the
+first of them, the lower rail facing the side that runs from the lower supply.  GPIO
+lines are named freely, so they are listed in a comment rather than guessed.  The values
+written (rail, trace, clock) are placeholders a designer replaces; the file says so
+beside each one, and it loads and checks as it is.
 """
 
 from __future__ import annotations
@@ -60,6 +64,12 @@ def _supply(part) -> float:
     return round((s.min.value + s.max.value) / 2, 2)
 
 
+def _rail_name(segment: list[str]) -> str:
+    """A segment's id from its rail line (``supply = "1.8 V"`` gives ``1v8``)."""
+    volts = segment[0].split('"')[1].removesuffix(" V")
+    return volts.replace(".", "v") if "." in volts else volts + "v"
+
+
 def _groups() -> list[list]:
     """Protocols with named signals, grouped by the pin functions they use."""
     out: dict[tuple, list] = {}
@@ -78,7 +88,54 @@ def _device_lines(members, controller) -> list[str]:
     return out
 
 
-def _bus(group, members) -> list[str]:
+def _on_rail(part, rail: float) -> bool:
+    """Whether ``part`` runs from ``rail`` (a part that states no supply is taken to)."""
+    s = part.supply
+    return s is None or s.min.value <= rail <= s.max.value
+
+
+def _open_drain_rail(members, ctrl, bridge=None) -> list[str]:
+    """The rail, pull-ups, trace and devices of an open-drain bus or segment; ``bridge``:
+    (placement, side) of a bridging part on it."""
+    parts = dict((pl.ref, p) for pl, p in members)
+    rail = _supply(parts[ctrl.ref]) if ctrl is not None else _supply(members[0][1])
+    out = [f'supply = "{format_si(rail, "V")}"                 # the rail of the pull-ups: '
+           'check it',
+           'supply_tolerance = "5 %"',
+           'pullup = "auto"                  # or a value, e.g. "4.7 kΩ"',
+           'pullup_tolerance = "1 %"',
+           'pullup_series = "E24"',
+           'trace = { length = "10 cm", geometry = "outer" }   # placeholder: '
+           'your routed length']
+    out += _device_lines(members, ctrl)
+    if bridge is not None:
+        pl, side = bridge
+        out.insert(-1, f'  {{ ref = {_toml_string(pl.ref)}, part = "{pl.part_id}", '
+                       f'side = "{side}" }},')
+    return out
+
+
+def _segments(members, ctrl, bridge) -> list[list[str]] | None:
+    """The two segments of an open-drain bus across a bridging part (``bridge``: its
+    placement and part): the controller's rail and the parts that run from it, and
+    the parts that do not, on the rail of the first of them; None when every part
+    runs from the controller's rail (nothing says where the bridge goes)."""
+    parts = dict((pl.ref, p) for pl, p in members)
+    rail = _supply(parts[ctrl.ref])
+    here = [(pl, p) for pl, p in members if _on_rail(p, rail)]
+    there = [(pl, p) for pl, p in members if not _on_rail(p, rail)]
+    if not there:
+        return None
+    far_rail = _supply(there[0][1])
+    # the lower rail faces the side that runs from the lower supply (a MOSFET's source)
+    pl, part = bridge
+    low, high = sorted(part.sides, key=lambda k: (part.sides[k].supply.min.value, k))
+    near, far = (high, low) if rail > far_rail else (low, high)
+    return [_open_drain_rail(here, ctrl, (pl, near)), _open_drain_rail(there, None, (pl, far))]
+
+
+def _bus(group, members, bridges=()) -> tuple[list[str], bool]:
+    """A bus's lines, and whether the bridging part (the one of ``bridges``) is on it."""
     proto = group[0]
     ctrl = next((pl for pl, p in members if _drives_clock(p, proto)), members[0][0])
     ctrl_part = dict((pl.ref, p) for pl, p in members)[ctrl.ref]
@@ -89,16 +146,17 @@ def _bus(group, members) -> list[str]:
            "[[bus]]", f'id = "{proto.name}"', f'protocol = "{proto.name}"{alt}']
     if proto.open_drain:
         out += ['mode = "standard"                # see docs/formats/design.md for the modes',
-                'clock = "100 kHz"',
-                f'supply = "{supply}"                 # the rail of the pull-ups: check it',
-                'supply_tolerance = "5 %"',
-                'pullup = "auto"                  # or a value, e.g. "4.7 kΩ"',
-                'pullup_tolerance = "1 %"',
-                'pullup_series = "E24"',
-                'trace = { length = "10 cm", geometry = "outer" }   # placeholder: '
-                'your routed length']
-        out += _device_lines(members, ctrl)
-        return out
+                'clock = "100 kHz"']
+        segments = _segments(members, ctrl, bridges[0]) if len(bridges) == 1 else None
+        if segments is None:
+            return out + _open_drain_rail(members, ctrl), False
+        for (name, seg), first in zip((("near", segments[0]), ("far", segments[1])),
+                                      (True, False), strict=True):
+            where = ("the controller's rail" if first
+                     else f"the parts across {bridges[0][0].ref}")
+            out += ["", f"# Segment: {where}.", "[[bus.segment]]",
+                    f'id = "{name}-{_rail_name(seg)}"'] + seg
+        return out, True
     out += ["spi_mode = 0                     # CPOL/CPHA of the peripherals",
             'clock = "1 MHz"                  # placeholder: the clock you intend',
             f'supply = "{supply}"                 # the rail of the I/O: check it',
@@ -109,7 +167,7 @@ def _bus(group, members) -> list[str]:
                                         if pl is not ctrl):
             out.append(f'lines.{sig} = {{ length = "5 cm", geometry = "outer", '
                        'series_resistor = "auto" }   # placeholder: your routed length')
-    return out
+    return out, False
 
 
 def starter_text(title: str, placed: list[tuple[Placement, object]]) -> tuple[str, int]:
@@ -141,13 +199,15 @@ def starter_text(title: str, placed: list[tuple[Placement, object]]) -> tuple[st
     buses = 0
     for group in _groups():
         need = ("sda", "scl") if group[0].open_drain else ("sclk",)
-        members = [(pl, p) for pl, p in placed
-                   if not p.sides and all(s in _serves(p, group[0]) for s in need)]
+        serving = [(pl, p) for pl, p in placed if all(s in _serves(p, group[0]) for s in need)]
+        members = [(pl, p) for pl, p in serving if not p.sides]
         if len(members) < 2:
             continue
+        bridges = [(pl, p) for pl, p in serving if p.sides and group[0].open_drain]
         buses += 1
-        out += _bus(group, members)
-        on_bus |= {pl.ref for pl, _ in members}
+        text, bridged = _bus(group, members, bridges)
+        out += text
+        on_bus |= {pl.ref for pl, _ in members + (bridges if bridged else [])}
     gpio = [f"{pl.ref}.{name}" for pl, p in placed
             for name, pin in p.pins.items() if pin.function == "gpio"]
     if gpio:
