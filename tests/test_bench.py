@@ -123,5 +123,25 @@ def test_bad_levels_are_refused(design, capsys):
         main(["measured", str(design), "--bus", "i2c0", "--rise", "1us", "--probe", "1pF",
               "--levels", "30"])
     assert "measuring levels are two numbers" in capsys.readouterr().err
-    with pytest.raises(PinlibError, match="measuring levels out of range"):
+    with pytest.raises(PinlibError, match="measuring levels out of range") as got:
         compare_rise(load_design(design), "i2c0", 250e-9, 10e-12, levels=(0.7, 0.3))
+    assert got.value.field == "--levels" and got.value.value == "70%,30%"
+    # in % as the help says: 0 % and 100 % are refused by the option itself, in %
+    for levels in ("0,100", "70,30"):
+        with pytest.raises(SystemExit):
+            main(["measured", str(design), "--bus", "i2c0", "--rise", "1us", "--probe",
+                  "1pF", "--levels", levels])
+        assert "expected 0 <= LO < HI < 100, in % of the rail" in capsys.readouterr().err
+
+
+def test_reading_errors_name_the_option_and_its_value_in_units(design, capsys):
+    # the physics names its parameters t_measured, c_probe; the command's user gave
+    # --rise and --probe, in units
+    assert main(["measured", str(design), "--bus", "i2c0", "--rise", "1ns",
+                 "--probe", "10pF"]) == 2
+    err = " ".join(capsys.readouterr().err.split())
+    assert "field '--rise'" in err and "(got '1 ns')" in err and "t_measured" not in err
+    assert main(["measured", str(design), "--bus", "i2c0", "--rise=-5ns",
+                 "--probe", "10pF"]) == 2
+    err = " ".join(capsys.readouterr().err.split())
+    assert "field '--rise'" in err and "(got '-5 ns')" in err

@@ -24,6 +24,9 @@ from pinlib.model.design import Design
 
 __all__ = ["READING_TOLERANCE", "BenchComparison", "compare_rise"]
 
+#: The physics' names of the reading's values, and the command's options they come from.
+_OPTIONS = {"t_measured": ("--rise", "s"), "c_probe": ("--probe", "F"), "lo/hi": ("--levels", "")}
+
 #: How far a cursor reading of a rise time on an oscilloscope may be off (the edge's
 #: ends are read by eye on a slow exponential): common practice, no source.
 READING_TOLERANCE = 0.10
@@ -164,7 +167,7 @@ def compare_rise(design: Design, bus_id: str, rise: float, c_probe: float, *,
     rp = seg_in.r_eff(signal)
     tol = float(seg_in.segment.pullup_tolerance)
     lo, hi = levels
-    cb, _ = capacitance_from_rise(rise, rp, c_probe, lo=lo, hi=hi)
+    cb = _from_reading(rise, rp, c_probe, lo, hi)
     # a larger pull-up charges slower: the same reading then means less capacitance
     cb_low, _ = capacitance_from_rise(rise * (1 - READING_TOLERANCE), rp * (1 + tol),
                                       0.0, lo=lo, hi=hi)
@@ -185,3 +188,32 @@ def compare_rise(design: Design, bus_id: str, rise: float, c_probe: float, *,
     return BenchComparison(bus.id, seg_in.segment.id, signal, float(rise), float(c_probe),
                            (float(lo), float(hi)), float(rp), tol, float(cb), cb_low, cb_high,
                            model, parts, verdict, revisit)
+
+
+def _from_reading(rise: float, rp: float, c_probe: float, lo: float, hi: float) -> float:
+    """The bus capacitance of a reading; an error names the option it comes from, with
+    its value in units (the physics names its own parameters)."""
+    try:
+        cb, _ = capacitance_from_rise(rise, rp, c_probe, lo=lo, hi=hi)
+    except InputError as err:
+        option, unit = _OPTIONS.get(err.field, (err.field, ""))
+        if option == "--levels":
+            value = f"{lo:.0%},{hi:.0%}"
+            expected = "0 % <= LO < HI < 100 % of the rail (an RC rise never reaches 100 %)"
+        else:
+            value = format_si(float(err.value), unit) if unit else err.value
+            expected = err.expected
+            if err.field == "t_measured" and float(rise) > 0:
+                alone = format_si(_probe_rise(rp, c_probe, lo, hi), "s")
+                expected = ("a rise longer than the probe alone gives through the pull-up "
+                            f"{format_si(rp, 'Ω')}: {alone}")
+        raise InputError(err.problem, field=option, value=value, expected=expected,
+                         hint=err.hint) from None
+    return cb
+
+
+def _probe_rise(rp: float, c_probe: float, lo: float, hi: float) -> float:
+    """The rise between ``lo`` and ``hi`` of the pull-up into the probe alone. [s]"""
+    import math
+
+    return rp * c_probe * (math.log1p(-lo) - math.log1p(-hi))

@@ -41,6 +41,10 @@ def levels_type(text: str) -> tuple[float, float]:
         raise argparse.ArgumentTypeError(M.LEVELS_FORM + f" (got {text!r})") from None
     if lo > 1 or hi > 1:
         lo, hi = lo / 100.0, hi / 100.0
+    if not 0.0 <= lo < hi < 1.0:
+        raise argparse.ArgumentTypeError(
+            M.LEVELS_OUT_OF_RANGE + f" (got {text!r}); expected 0 <= LO < HI < 100, in % of "
+            "the rail (an RC rise never reaches 100 %)")
     return lo, hi
 
 
