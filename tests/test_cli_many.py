@@ -240,7 +240,8 @@ def test_against_snapshots_lists_what_moved_per_design(tmp_path, capsys, monkeyp
     main(["check", "a.toml", "b.toml", "--against-snapshots", "--jobs", "1"])
     out = capsys.readouterr().out
     assert "no snapshot to compare with" in out  # b.toml
-    assert "pullup" in out.split("b.toml")[0]    # what moved in a.toml
+    moved = out.split("b.toml")[0]  # what moved in a.toml: each quantity once, labelled
+    assert moved.count("Pull-up resistor 4.7 kΩ → 3.3 kΩ") == 1 and "pullup_sda" not in moved
     main(["check", "a.toml", "b.toml", "--against-snapshots", "--json", "--jobs", "1"])
     rows = json.loads(capsys.readouterr().out)
     assert [r["snapshot"] for r in rows] == ["compared", "none"]

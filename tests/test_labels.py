@@ -1,4 +1,4 @@
-"""Tests of pinlib.present.labels: readable names of figure and check ids, each figure shown once.
+"""Tests of pinlib.core.labels: readable names of figure and check ids, each figure shown once.
 
 The rules are checked on figures the engines return for the demo design and for made-up
 values where the lines of a bus differ.
@@ -12,8 +12,7 @@ from pathlib import Path
 
 import pytest
 
-from pinlib.engines.dispatch import check_file
-from pinlib.present.labels import (
+from pinlib.core.labels import (
     FIGURES,
     check_label,
     figure_label,
@@ -21,6 +20,7 @@ from pinlib.present.labels import (
     short_label,
     shown_figures,
 )
+from pinlib.engines.dispatch import check_file
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"
@@ -84,7 +84,7 @@ def test_shown_figures_rules(values, kept):
 
 
 def test_labels_import_no_widget_or_chart():
-    code = ("import sys, pinlib.present.labels; "
+    code = ("import sys, pinlib.core.labels; "
             "bad = [m for m in ('ipywidgets', 'altair', 'pinlib.present.widgets', "
             "'pinlib.present.charts') "
             "if m in sys.modules]; print(bad); sys.exit(1 if bad else 0)")

@@ -2,7 +2,7 @@
 
 Per bus: a table of figures per segment or line (readable labels with units; a quantity
 that repeats another — ``pullup`` and ``pullup_resistor``, a line's copy of the bus
-figure — shown once, :func:`pinlib.present.labels.shown_figures`), a table of checks
+figure — shown once, :func:`pinlib.core.labels.shown_figures`), a table of checks
 (status, check, subject, value, limit, margin and the number of its source), each
 problem's message spelt out, then the bus's sources and notes, each printed once
 however many lines share it.
@@ -12,8 +12,8 @@ from __future__ import annotations
 
 import textwrap
 
+from pinlib.core.labels import check_label, figure_label, humanize, shown_figures
 from pinlib.model.result import CAUTION, BusResult, Group, margin_text
-from pinlib.present.labels import check_label, figure_label, humanize, shown_figures
 from pinlib.present.terminal import status_word, wrap
 from pinlib.present.values import counts, format_value
 

@@ -11,7 +11,7 @@ to a width (:func:`format_text`):
 * ``detail``: every figure and check (:mod:`pinlib.present.detail`).
 
 Nothing here computes a figure: it formats what the engines returned, with SI prefixes
-and the readable labels of :mod:`pinlib.present.labels` (ids stay in the JSON).
+and the readable labels of :mod:`pinlib.core.labels` (ids stay in the JSON).
 """
 
 from __future__ import annotations
@@ -19,9 +19,9 @@ from __future__ import annotations
 import math
 import re
 
+from pinlib.core.labels import check_label, humanize
 from pinlib.model.result import BusResult, Check, DesignResult, margin_text
 from pinlib.present.detail import detail_lines
-from pinlib.present.labels import check_label, humanize
 from pinlib.present.terminal import DEFAULT_WIDTH, status_word, wrap
 from pinlib.present.values import counts, format_value
 

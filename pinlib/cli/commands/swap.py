@@ -278,24 +278,12 @@ def _swap_rows(design, swaps: dict) -> list[dict]:
 
 def _moved(rows) -> list[str]:
     """The figures that moved beyond the threshold, by place, under readable labels, each
-    quantity once (:func:`pinlib.present.labels.shown_figures`)."""
-    from pinlib.present.labels import figure_label, shown_figures
-    from pinlib.studies.compare import format_change, format_figure
+    quantity once (:func:`pinlib.studies.compare.changes.shown_changes`)."""
+    from pinlib.studies.compare.changes import FigureChange, shown_changes
 
-    by_path: dict[str, dict] = {}
-    for r in rows:
-        if r.moved:
-            by_path.setdefault(r.path, {})[r.name] = r
-    out = []
-    for path, named in by_path.items():
-        keep = shown_figures(named, same=lambda a, b: (a.old, a.new) == (b.old, b.new))
-        for name in keep:
-            r = named[name]
-            change = format_change(r.change) if r.kind in ("moved", "same") else {
-                "added": "(new)", "removed": "(gone)"}.get(r.kind, "")
-            out.append(f"  {path}: {figure_label(name)} {format_figure(r.old, r.unit)} → "
-                       f"{format_figure(r.new, r.unit)} {change}".rstrip())
-    return out
+    moved = [FigureChange(r.path, r.name, r.unit, r.old, r.new, r.change, r.kind)
+             for r in rows if r.moved]
+    return ["  " + c.format() for c in shown_changes(moved)]
 
 
 def _text(design, swap_rows, rows, before, after, changes, detail=False) -> list[str]:

@@ -302,7 +302,9 @@ class _Html:
             self.w(f'<p class="none">{text}</p>',
                    "</section>")
             return
+        from pinlib.core.labels import figure_label
         from pinlib.studies.compare import format_change, format_figure
+        from pinlib.studies.compare.changes import shown_changes
 
         pct = f"{cl.threshold * 100:g} %"
         when = f" saved {cl.old_created}" if cl.old_created else ""
@@ -336,8 +338,8 @@ class _Html:
             self.w(f"<h3>Figures that moved more than {_e(pct)}</h3>", "<table><thead><tr>"
                    + "".join(f'<th scope="col">{x}</th>' for x in (
                        "Where", "Figure", "Before", "After", "Change")) + "</tr></thead><tbody>")
-            for f in cl.figure_changes:
-                self.w(f"<tr><td>{_e(f.path)}</td><td><code>{_e(f.name)}</code></td>"
+            for f in shown_changes(cl.figure_changes):
+                self.w(f"<tr><td>{_e(f.path)}</td><td>{_e(figure_label(f.name))}</td>"
                        f'<td class="num">{_e(format_figure(f.old, f.unit))}</td>'
                        f'<td class="num">{_e(format_figure(f.new, f.unit))}</td>'
                        f'<td class="num">{_e(format_change(f.change) or f.kind)}</td></tr>')

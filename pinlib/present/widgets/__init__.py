@@ -38,7 +38,7 @@ Modules
 trace controls), and one module per workbench: ``busbuilder`` (01), ``lineexplorer`` (02),
 ``spibudget`` (03), ``recorder`` and ``ibisimporter`` (04), ``swaps`` (05), ``crosstalk``
 (06).  Labels of
-figures and checks come from :mod:`pinlib.present.labels`.
+figures and checks come from :mod:`pinlib.core.labels`.
 
 This package imports ipywidgets, and altair through :mod:`pinlib.present.charts`; the command line
 and :mod:`pinlib.engines.dispatch` never import it.

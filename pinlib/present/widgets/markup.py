@@ -3,7 +3,7 @@
 Every table is capped to the width it is given (``max-width:100%``, long words wrap) so
 that it never pushes a column of controls sideways, and sets its own line height (a
 widget's HTML area otherwise spaces lines by the height of a control).  Figures and
-checks are shown by their labels (:mod:`pinlib.present.labels`) with their values and units; the
+checks are shown by their labels (:mod:`pinlib.core.labels`) with their values and units; the
 ids stay in each row's tooltip.
 """
 
@@ -13,9 +13,10 @@ import html
 import math
 import re
 
+from pinlib.core import labels
 from pinlib.core.errors import PinlibError
 from pinlib.model.result import CAUTION, BusResult, Group, margin_text
-from pinlib.present import charts, labels
+from pinlib.present import charts
 from pinlib.present.report import format_value
 
 STATUS_TEXT = {"pass": "PASS", "warn": "WARN", "fail": "FAIL"}
@@ -95,9 +96,9 @@ def _caption(text: str) -> str:
 
 
 def figures_table(figures: dict, caption: str = "Figures") -> str:
-    """An HTML table of figures: each by its label (:func:`pinlib.present.labels.figure_label`)
+    """An HTML table of figures: each by its label (:func:`pinlib.core.labels.figure_label`)
     with its value and unit, a figure that repeats another left out
-    (:func:`pinlib.present.labels.shown_figures`)."""
+    (:func:`pinlib.core.labels.shown_figures`)."""
     values = {name: f.value for name, f in figures.items()}
     rows = "".join(
         f'<tr title="{e(name)}"><td style="{CELL}">{e(labels.figure_label(name))}</td>'

@@ -8,6 +8,7 @@ import ipywidgets as W
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
+from pinlib.core.labels import check_label
 from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import tomllib
 from pinlib.core.valueclass import value_class
@@ -15,7 +16,6 @@ from pinlib.engines.dispatch import evaluate_bus
 from pinlib.model.design import Design, design_from_text, load_design
 from pinlib.model.result import BusResult
 from pinlib.present import charts, plotdata
-from pinlib.present.labels import check_label
 from pinlib.present.report import format_value
 from pinlib.present.widgets.common import (
     ChartView,

@@ -18,12 +18,12 @@ import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import PinlibError
+from pinlib.core.labels import check_label, figure_label, short_label, shown_figures
 from pinlib.core.protocols import is_open_drain, protocol
 from pinlib.core.quantity import format_si
 from pinlib.engines.dispatch import check_design
 from pinlib.model.design import load_design
 from pinlib.present import charts, plotdata
-from pinlib.present.labels import check_label, figure_label, short_label, shown_figures
 from pinlib.present.report import format_value
 from pinlib.present.widgets.common import (
     ChartView,
@@ -358,7 +358,7 @@ class SwapExplorer(_Panel):
     @staticmethod
     def _figure_rows(figures) -> list[str]:
         """Rows of moved figures, by segment or line, each figure once
-        (:func:`pinlib.present.labels.shown_figures`)."""
+        (:func:`pinlib.core.labels.shown_figures`)."""
         by_path: dict[str, dict] = {}
         for c in figures:
             by_path.setdefault(c.path, {})[c.name] = c

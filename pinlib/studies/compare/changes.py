@@ -10,6 +10,7 @@ from typing import Any
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.core.labels import figure_label, shown_figures
 from pinlib.core.quantity import Threshold, format_si, format_threshold
 from pinlib.core.valueclass import value_class
 from pinlib.studies.compare.figures import (
@@ -100,14 +101,29 @@ class FigureChange:
     kind: str  # "moved", "changed", "added", "removed"
 
     def format(self) -> str:
-        return (f"{self.path} {self.name}: {format_figure(self.old, self.unit)} {_ARROW} "
-                f"{format_figure(self.new, self.unit)} {format_change(self.change)}").rstrip()
+        """``path: Label old → new (change)``, the figure under its readable label."""
+        change = format_change(self.change) if self.kind in ("moved", "same") else {
+            "added": "(new)", "removed": "(gone)"}.get(self.kind, "")
+        return (f"{self.path}: {figure_label(self.name)} {format_figure(self.old, self.unit)} "
+                f"{_ARROW} {format_figure(self.new, self.unit)} {change}").rstrip()
 
     def to_json(self) -> dict:
         return {"path": self.path, "name": self.name, "unit": self.unit, "old": self.old,
                 "new": self.new,
                 "change": None if self.change is None or math.isinf(self.change)
                 else self.change, "kind": self.kind}
+
+
+def shown_changes(changes) -> list:
+    """Figure changes (anything with ``path``, ``name``, ``old``, ``new``) each quantity
+    once, by place in the order given and in table order within a place: a line's
+    ``X_sda``/``X_scl`` and ``X``, ``pullup`` and ``pullup_resistor`` shown once when
+    they are the same numbers (:func:`pinlib.core.labels.shown_figures`)."""
+    by_path: dict[str, dict] = {}
+    for c in changes:
+        by_path.setdefault(c.path, {})[c.name] = c
+    return [named[name] for named in by_path.values()
+            for name in shown_figures(named, same=lambda a, b: (a.old, a.new) == (b.old, b.new))]
 
 
 def value_label(key: str) -> str:
@@ -272,7 +288,7 @@ class ChangeList:
             out += ["  " + c.format() for c in self.status_changes]
         if self.figure_changes:
             out.append(f"Figures that moved more than {pct}:")
-            out += ["  " + c.format() for c in self.figure_changes]
+            out += ["  " + c.format() for c in shown_changes(self.figure_changes)]
         if self.part_changes:
             out.append("Part values behind the change:")
             for pc in self.part_changes:
