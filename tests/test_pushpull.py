@@ -492,6 +492,11 @@ lines.irq = { length = "6 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }
     assert ln.check("level-low").value == pytest.approx(v_high * 100 / 4800, rel=1e-9)
     assert ln.check("level-high").value == pytest.approx(v_high, rel=1e-9)
     assert ln.status == "pass"
+    # two drivers: each level check names its receiver and the driver it is from
+    highs = [c.subject for c in ln.checks if c.id == "level-high"]
+    assert len(highs) == len(set(highs)) > 1 and all(" from " in h for h in highs)
+    (only,) = [c.subject for c in reset.lines[0].checks if c.id == "level-high"]
+    assert only == "U2"  # one driver: the receiver alone, as before
 
 
 def test_gpio_open_drain_without_pullup_fails(tmp_path):

@@ -33,7 +33,8 @@ def _si_checks(a: LineAnalysis, cases: dict, clock: float | None, clock_line: bo
         checks.append(_ringing_check(rx, cases, v_il, v_ih, clock_line))
         for ref, c in cases.items():
             if ref != rx.ref:
-                checks += _level_checks(rx, drivers[ref], c, v_il, v_ih, warn)
+                checks += _level_checks(rx, drivers[ref], c, v_il, v_ih, warn,
+                                        named=len(drivers) > 1)
     if clock and a.net is not None:
         checks += [_edge_check(cases, clock, warn, rx) for rx in a.receivers]
     elif clock:
@@ -154,20 +155,22 @@ def _driver_levels(d: Endpoint, c) -> tuple[float, str, float, str]:
 
 
 def _level_checks(rx: Endpoint, d: Endpoint, c, v_il: float, v_ih: float,
-                  warn: float) -> list[Check]:
-    """A driver's VOH/VOL against one receiver's VIH/VIL."""
+                  warn: float, named: bool = False) -> list[Check]:
+    """A driver's VOH/VOL against one receiver's VIH/VIL; ``named``: the line has more
+    than one driver, and the subject names this one (``U3 from U1``)."""
     v_oh, oh_src, v_ol, ol_src = _driver_levels(d, c)
+    subject = f"{rx.ref} from {d.ref}" if named else rx.ref
     return [
         check_min(
             "level-high", v_oh, v_ih, "V", rx.source("v_ih"),
             f"{d.label} VOH {_fmt(v_oh, 'V')} against {rx.label} VIH {_fmt(v_ih, 'V')}",
-            warn_margin=warn, subject=rx.ref, details={"driver": d.label,
-                                                       "driver_source": oh_src}),
+            warn_margin=warn, subject=subject, details={"driver": d.label,
+                                                        "driver_source": oh_src}),
         check_max(
             "level-low", v_ol, v_il, "V", rx.source("v_il"),
             f"{d.label} VOL {_fmt(v_ol, 'V')} against {rx.label} VIL {_fmt(v_il, 'V')}",
-            warn_margin=warn, subject=rx.ref, details={"driver": d.label,
-                                                       "driver_source": ol_src}),
+            warn_margin=warn, subject=subject, details={"driver": d.label,
+                                                        "driver_source": ol_src}),
     ]
 
 
