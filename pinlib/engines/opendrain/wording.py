@@ -267,9 +267,13 @@ def _v_oh(w: Words, ln: LineInputs, rp_hi: float) -> None:
     rows = _by_margin(bc.row_margins[0].tolist())
     failing = [ln.receivers[j].tap.label for m, j in rows if m < 0]
     src = r.tap.source("v_ih") if r.tap.pin.v_ih is not None else lim.source_levels
-    chk = make(bc, src, f"{up} high level {_f(bc.value[0], 'V')} (rail − {_f(ln.leakage, 'A')} "
-               f"leakage × {_f(rp_hi, 'Ω')}, {_CORNERS[c]}) against VIH {_f(bc.limit[0], 'V')} "
-               f"of {r.tap.label}", subject=f"{up} {r.tap.label}",
+    level = (f"rail − {_f(ln.leakage, 'A')} leakage × {_f(rp_hi, 'Ω')}, {_CORNERS[c]}"
+             if bc.value[0] > 0 else
+             f"the leakage {_f(ln.leakage, 'A')} × {_f(rp_hi, 'Ω')} would drop "
+             f"{_f(ln.leakage * rp_hi, 'V')}, more than the rail: the leakage pulls the line "
+             f"to ground, {_CORNERS[c]}")
+    chk = make(bc, src, f"{up} high level {_f(bc.value[0], 'V')} ({level}) against VIH "
+               f"{_f(bc.limit[0], 'V')} of {r.tap.label}", subject=f"{up} {r.tap.label}",
                details={"receivers": {ln.receivers[j].tap.label: m for m, j in rows}})
     if failing:
         _failed(chk, f"{', '.join(failing)} cannot read the pull-up rail as high: pull up to "
