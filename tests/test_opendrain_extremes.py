@@ -4,10 +4,54 @@ leakage would drop below ground (held at 0 V), and an SMBus clock below fSMB's m
 
 from __future__ import annotations
 
+import json
+import math
+
 import pytest
 from test_opendrain import bus_result, fig, one_bus
 
+from pinlib.model.result import BusResult, DesignResult
+from pinlib.present.detail import detail_lines
 from pinlib.present.report import problem_line
+
+
+def _no_infinity(res: BusResult) -> None:
+    """Nothing in the result reads as an unbounded or missing number."""
+    text = json.dumps(res.to_json(), ensure_ascii=False)
+    assert "Infinity" not in text and "NaN" not in text
+    for _, signal, c in res.all_checks():
+        line = problem_line(res, None, signal, c)
+        assert " inf " not in f" {line} " and "inf s" not in line and "∞" not in line
+    lines = detail_lines(DesignResult("extremes", buses=[res]), 100)
+    assert not any("∞" in ln or "inf s" in ln for ln in lines)
+
+
+# --------------------------------------------------------------------- no fall time
+
+
+def test_a_line_the_sink_cannot_pull_down_has_no_fall_time(tmp_path):
+    # derived: 3.3 V across a 1 mΩ pull-up is 3.3 kA, against t-ctrl-3v3's 3 mA sink
+    # (test data, invented): the line stays near the rail and never reaches 0.3·VDD
+    res = bus_result(tmp_path, one_bus(pullup="1 mΩ"))
+    chk = res.check("fall-time")
+    assert chk.status == "fail"
+    assert chk.value is None and chk.margin is None
+    assert chk.reason and "never falls" in chk.reason
+    # published: UM10204 rev. 6 table 10, tf measured down to 0.3·VDD = 990 mV at 3.3 V
+    assert "990 mV" in chk.reason
+    assert "inf" not in chk.message and chk.fix and chk.message.count(chk.fix) == 1
+    for name in ("fall_time", "fall_time_sda", "fall_time_scl", "scl_frequency_effective"):
+        assert fig(res, name) is None, name
+    assert "no effective frequency" in res.check("scl-frequency").message
+    _no_infinity(res)
+
+
+def test_a_line_that_falls_keeps_its_figures(tmp_path):
+    res = bus_result(tmp_path, one_bus(pullup="2.2 kΩ"))
+    assert math.isfinite(fig(res, "fall_time")) and fig(res, "scl_frequency_effective") > 0
+    chk = res.check("fall-time")
+    assert chk.reason is None and "fall time at most" in chk.message
+
 
 # --------------------------------------------------------------------- high level
 
