@@ -10,6 +10,7 @@ import math
 import pytest
 from test_opendrain import bus_result, fig, one_bus
 
+from pinlib.engines.limits import limits_for
 from pinlib.model.result import BusResult, DesignResult
 from pinlib.present.detail import detail_lines
 from pinlib.present.report import problem_line
@@ -73,3 +74,47 @@ def test_a_high_level_above_ground_is_worded_as_before(tmp_path):
     res = bus_result(tmp_path, one_bus(pullup="10 kΩ"))
     assert "leakage ×" in res.check("v-oh").message
     assert "ground" not in res.check("v-oh").message
+
+
+# --------------------------------------------------------------------- SMBus clock
+
+SMBUS = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+         '{ ref = "U9", part = "t-gauge-smbus" }']
+
+
+def _smbus(tmp_path, clock: str):
+    return bus_result(tmp_path, one_bus(protocol="smbus", mode="100k", pullup="2.2 kΩ",
+                                        devices=SMBUS, more=f'clock = "{clock}"'))
+
+
+def test_smbus_limits_carry_the_minimum_clock():
+    # published: SMBus specification 3.1, table 2: fSMB min 10 kHz in every class
+    for mode in ("100k", "400k", "1m"):
+        assert limits_for("smbus", mode).f_min == 10e3
+    # published: UM10204 rev. 6 table 10: fSCL min 0 Hz (no minimum) in every mode
+    assert limits_for("i2c", "fast").f_min is None
+
+
+def test_smbus_clock_below_its_minimum_fails(tmp_path):
+    chk = _smbus(tmp_path, "1 kHz").check("scl-frequency")
+    # published: SMBus specification 3.1, table 2: fSMB min 10 kHz
+    assert chk.status == "fail" and chk.limit == 10e3 and chk.value == 1e3
+    assert chk.margin == pytest.approx(-0.9)  # derived: (1 − 10)/10
+    assert "table 2 (fSMB)" in chk.source and "minimum 10 kHz" in chk.message
+    assert chk.fix and "10 kHz" in chk.fix
+
+
+def test_smbus_clock_inside_its_range_passes_against_the_nearer_limit(tmp_path):
+    # published: SMBus specification 3.1, table 2: fSMB 10–100 kHz for the 100 kHz class
+    low = _smbus(tmp_path, "10 kHz").check("scl-frequency")
+    assert low.status != "fail" and low.limit == 10e3
+    mid = _smbus(tmp_path, "80 kHz").check("scl-frequency")
+    # derived: 80 kHz is 20 % under the maximum and 700 % over the minimum
+    assert mid.status == "pass" and mid.limit == 100e3
+    assert mid.margin == pytest.approx(0.2)
+
+
+def test_i2c_has_no_minimum_clock(tmp_path):
+    # published: UM10204 rev. 6 table 10: fSCL min 0 Hz
+    chk = bus_result(tmp_path, one_bus(more='clock = "1 kHz"')).check("scl-frequency")
+    assert chk.status == "pass" and chk.limit == 400e3

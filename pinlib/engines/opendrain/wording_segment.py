@@ -96,9 +96,20 @@ def _timing(w: Words, sb) -> None:
     eff = ("SCL never falls, so it has no effective frequency" if f_eff is None else
            f"with the edges the controller counts, the effective frequency is "
            f"{_f(f_eff, 'Hz')} (UM10204 rev. 6 §7.2.1 eq. 3)")
-    grp.add(make(bc, lim.source_f,
-                 f"SCL clock {_f(clock, 'Hz')} against {lim.label}'s {_f(lim.f_max, 'Hz')}; "
-                 f"{eff}"))
+    k, _ = row_corner(bc)
+    if k == 1:  # below the document's minimum clock (SMBus's fSMB min)
+        chk = make(bc, lim.source_f,
+                   f"SCL clock {_f(clock, 'Hz')} against {lim.label}'s minimum "
+                   f"{_f(lim.f_min, 'Hz')} (fSMB runs from {_f(lim.f_min, 'Hz')} to "
+                   f"{_f(lim.f_max, 'Hz')})")
+        if chk.status == "fail":
+            chk.fix = f"run the clock at {_f(lim.f_min, 'Hz')} or faster"
+            chk.message += f"; {chk.fix}"
+        grp.add(chk)
+    else:
+        grp.add(make(bc, lim.source_f,
+                     f"SCL clock {_f(clock, 'Hz')} against {lim.label}'s {_f(lim.f_max, 'Hz')}"
+                     f"; {eff}"))
     bc = w.peek("device-speed")
     if bc is not None:
         w.take("device-speed")
