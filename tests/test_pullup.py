@@ -44,6 +44,12 @@ def test_low_level_divider():
 def test_high_level_and_power():
     # derived from Ohm's law: 10 µA through 10 kΩ drops 0.1 V
     assert pu.high_level(3.3, 10e3, 10e-6) == pytest.approx(3.2)
+    # derived: 1 µA through 10 MΩ would drop 10 V, more than the rail; the leakage
+    # flows to ground and cannot pull the line below it: 0 V, not -6.7 V
+    assert pu.high_level(3.3, 10e6, 1e-6) == 0.0
+    from pinlib.physics.pullup import unchecked
+
+    assert unchecked.high_level(3.3, 10e6, 1e-6) == 0.0
     # derived from P = V I: 3.3 V into 2.2 kΩ + 133.3 Ω
     assert pu.static_power(3.3, 2200.0, 133.333) == pytest.approx(3.3**2 / 2333.333, rel=1e-6)
 

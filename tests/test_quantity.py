@@ -132,6 +132,25 @@ def test_bare_number_suggests_the_unit(value, unit, suggested):
     assert suggested in info.value.hint
 
 
+@pytest.mark.parametrize(("value", "first", "other"), [
+    (0.05, '"5 %"', '"0.05 %"'), (0.2, '"20 %"', '"0.2 %"'), (0.001, '"0.1 %"', '"0.001 %"'),
+])
+def test_bare_fraction_for_a_percentage_suggests_it_times_100(value, first, other):
+    # common practice, no source: a tolerance written 0.05 means 5 % far more often
+    # than 0.05 %; both readings offered, the fraction's first
+    with pytest.raises(UnitError, match="bare number") as info:
+        parse(value, "%", field="supply_tolerance")
+    hint = info.value.hint
+    assert first in hint and other in hint and hint.index(first) < hint.index(other)
+
+
+def test_bare_number_of_one_or_more_for_a_percentage_is_taken_as_percent():
+    # common practice, no source: 5 for a tolerance is 5 %
+    with pytest.raises(UnitError) as info:
+        parse(5, "%", field="supply_tolerance")
+    assert '"5 %"' in info.value.hint and "fraction" not in info.value.hint
+
+
 @pytest.mark.parametrize("value", [float("nan"), float("inf"), "nan pF", "inf pF", "1e400 pF",
                                    "-1e400 F", "1e9999999 pF", "1e99999999999999999999 F"])
 def test_nan_and_inf_are_refused(value):

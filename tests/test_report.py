@@ -92,6 +92,23 @@ def test_problem_line_holds_value_limit_margin_and_fix(demo):
     assert text.endswith("; fix: " + c.fix)
 
 
+def test_a_fix_in_the_message_is_printed_once(tmp_path):
+    # the demo with U4 on a switched rail: its power-off check has no value, so its line
+    # shows the message, which carries the fix already (it was printed twice)
+    board = (ROOT / DEMO_ARG).read_text(encoding="utf-8")
+    old = '{ ref = "U4", part = "eeprom-i2c" }'
+    assert old in board
+    design = tmp_path / "switched.toml"
+    design.write_text(board.replace(old, old[:-2] + ", switched = true }"), encoding="utf-8")
+    result = check_file(design)
+    bus = result.bus("sensors")
+    seg = next(s for s in bus.segments if s.id == "main-3v3")
+    c = next(c for c in seg.checks if c.id == "power-off" and c.subject == "U4")
+    assert c.status == "fail" and c.fix and c.value is not True
+    text = problem_line(bus, seg.id, None, c)
+    assert text.count(c.fix) == 1
+
+
 def test_bus_lines_carry_the_figures_of_their_protocol(demo):
     i2c = bus_line(demo.bus("power"))
     for words in ("Cb 77.7 pF", "Rp 766 Ω…30.7 kΩ", "chosen 4.7 kΩ", "tr 154 ns"):

@@ -167,10 +167,7 @@ def parse(text: object, unit: str, *, field: str | None = None) -> float:
     if isinstance(text, bool):
         raise _fail(text, unit, field, M.YES_NO_AS_QUANTITY)
     if isinstance(text, (int, float)):
-        _, example = UNITS[unit]
-        raise _fail(text, unit, field, M.BARE_NUMBER,
-                    hint="write it as a string with its unit, e.g. "
-                         f"\"{text} {example.split()[-1]}\"")
+        raise _fail(text, unit, field, M.BARE_NUMBER, hint=_bare_hint(text, unit))
     if not isinstance(text, str):
         raise _fail(text, unit, field, M.TYPE_AS_QUANTITY.format(type=type(text).__name__))
     if len(text) > MAX_QUANTITY_TEXT:
@@ -180,6 +177,18 @@ def parse(text: object, unit: str, *, field: str | None = None) -> float:
     if not math.isfinite(value):
         raise _fail(text, unit, field, M.NOT_FINITE)
     return value
+
+
+def _bare_hint(x: float, unit: str) -> str:
+    """How to write a bare number with its unit.  A bare number between 0 and 1 for a
+    percentage is most likely a fraction (0.05 for 5 %): both readings are offered, the
+    fraction's first."""
+    _, example = UNITS[unit]
+    hint = f"write it as a string with its unit, e.g. \"{x} {example.split()[-1]}\""
+    if unit == "%" and 0 < x < 1:
+        hint = (f"write it as a string with its unit: \"{x * 100:.10g} %\" if {x} is a "
+                f"fraction, or \"{x} %\" if you meant {x} percent")
+    return hint
 
 
 def _parse_text(text: str, unit: str, field: str | None) -> float:

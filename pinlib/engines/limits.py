@@ -49,6 +49,9 @@ class OpenDrainLimits:
         VIH,min + 0.15 V).
     f_max, tr_max, tf_max : float
         Clock limit [Hz]; rise and fall limits [s].
+    f_min : float or None
+        Lowest clock the document allows (SMBus's fSMB min); None where it gives none
+        (I2C). [Hz]
     cb_max : float or None
         Capacitance limit per line [F]; None where the document gives none.
     t_low, t_high, t_su_dat, t_vd_dat : float
@@ -84,6 +87,7 @@ class OpenDrainLimits:
     source_pin: str
     source_noise: str
     source_f: str
+    f_min: float | None = None
     _i2c: i2c_std.I2cMode | None = None
     _smbus: smbus_std.SmbusClass | None = None
 
@@ -229,7 +233,7 @@ def limits_for(protocol: str, mode: str) -> OpenDrainLimits:
             source_sink=f"{smbus_std.SOURCE_HIGH_POWER} (VOL, IPULLDOWN)",
             source_pin=f"{smbus_std.SOURCE_HIGH_POWER} (CPIN, ILEAK-PIN)",
             source_noise="SMBus specification version 3.1 gives no noise-margin limits",
-            source_f=f"{smbus_std.SOURCE_AC} (fSMB)",
+            source_f=f"{smbus_std.SOURCE_AC} (fSMB)", f_min=c.f_smb_min,
             _smbus=c,
         )
     raise DesignError(M.NOT_OPEN_DRAIN_BUS, field="protocol", value=protocol,

@@ -69,7 +69,7 @@ def problem_line(bus: BusResult, where: str | None, signal: str | None, c: Check
     who = " ".join(x for x in (signal.upper() if signal else None, c.subject) if x)
     text = f"{status_word(c.status)} {place}{' ' + who if who else ''}: {check_label(c.id)}"
     text += (": " if isinstance(c.value, bool) or c.value is None else " ") + _against(c)
-    if c.fix:
+    if c.fix and c.fix not in text:  # a message that is shown may carry its fix already
         text += f"; fix: {c.fix}"
     return text
 

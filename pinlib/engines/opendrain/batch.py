@@ -330,7 +330,10 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
         t_low, t_high, figs["scl"]["rise_time"], tf_scl if tf_scl is not None else 0.0),
         "sda_setup_margin": None}
     # what the wording names: the SCL times and whether they are counted (none stated)
-    out.pick("scl-frequency", None, [le(clock, lim.f_max)], 0.0, "Hz").basis = {
+    # the clock against the mode's maximum and, where the document sets one (SMBus's
+    # fSMB), its minimum: one check, the nearer limit named
+    rows = [le(clock, lim.f_max)] + ([] if lim.f_min is None else [ge(clock, lim.f_min)])
+    out.pick("scl-frequency", None, rows, 0.0, "Hz").basis = {
         "t_low": t_low, "t_high": t_high, "counted": counted}
     slow = [(ctx.parts.timing(d).f_max, d.ref) for d in seg.devices
             if not d.is_controller and not d.is_bridge and ctx.parts.timing(d).f_max is not None]

@@ -267,9 +267,13 @@ def _v_oh(w: Words, ln: LineInputs, rp_hi: float) -> None:
     rows = _by_margin(bc.row_margins[0].tolist())
     failing = [ln.receivers[j].tap.label for m, j in rows if m < 0]
     src = r.tap.source("v_ih") if r.tap.pin.v_ih is not None else lim.source_levels
-    chk = make(bc, src, f"{up} high level {_f(bc.value[0], 'V')} (rail − {_f(ln.leakage, 'A')} "
-               f"leakage × {_f(rp_hi, 'Ω')}, {_CORNERS[c]}) against VIH {_f(bc.limit[0], 'V')} "
-               f"of {r.tap.label}", subject=f"{up} {r.tap.label}",
+    level = (f"rail − {_f(ln.leakage, 'A')} leakage × {_f(rp_hi, 'Ω')}, {_CORNERS[c]}"
+             if bc.value[0] > 0 else
+             f"the leakage {_f(ln.leakage, 'A')} × {_f(rp_hi, 'Ω')} would drop "
+             f"{_f(ln.leakage * rp_hi, 'V')}, more than the rail: the leakage pulls the line "
+             f"to ground, {_CORNERS[c]}")
+    chk = make(bc, src, f"{up} high level {_f(bc.value[0], 'V')} ({level}) against VIH "
+               f"{_f(bc.limit[0], 'V')} of {r.tap.label}", subject=f"{up} {r.tap.label}",
                details={"receivers": {ln.receivers[j].tap.label: m for m, j in rows}})
     if failing:
         _failed(chk, f"{', '.join(failing)} cannot read the pull-up rail as high: pull up to "
@@ -291,10 +295,13 @@ def _fall(w: Words, ln: LineInputs, far: list) -> None:
     d = w.ctx.collected[s_i].lines[ln.signal].drivers[j]
     via = "" if s_i == seg_in.index else f" via {bc.names[k].rsplit(' via ', 1)[1]}"
     text, details = fall_basis(lim, d, info, c, ln.cb)
-    chk = make(bc, lim.source_edges,
-               f"{up} fall time at most {_f(bc.value[0], 's')} (driver {d.tap.label}{via}: "
-               f"{text}; pull-up at −{tol:.0%}, Cb {_f(ln.cb, 'F')}, {_CORNERS[c]})",
-               subject=up, details=details)
+    basis = (f"driver {d.tap.label}{via}: {text}; pull-up at −{tol:.0%}, Cb {_f(ln.cb, 'F')}, "
+             f"{_CORNERS[c]}")
+    if math.isfinite(bc.value[0]):
+        chk = make(bc, lim.source_edges, f"{up} fall time at most {_f(bc.value[0], 's')} "
+                   f"({basis})", subject=up, details=details)
+    else:  # the bound is infinite: the line never reaches the fall's lower level
+        chk = _never_falls(w, bc, up, basis, c, details)
     if chk.status == "fail":
         _failed(chk, "a stronger sink, a larger pull-up (inside its window), less bus "
                      "capacitance, or a part that states its output fall time (t_of_max)")
@@ -318,6 +325,19 @@ def _fall(w: Words, ln: LineInputs, far: list) -> None:
                          "responsibility of each device's slope-controlled output; its "
                          "part states no t_of_min, so it is not checked",
                  f"{up}: " + ", ".join(missing))
+
+
+def _never_falls(w: Words, bc, up: str, basis: str, c: int, details: dict) -> Check:
+    """The fall-time check where its bound is infinite: the driver's guaranteed sink
+    cannot pull the line through the fall's lower measuring level against the pull-up,
+    so the line never falls and has no fall time (failed, with the reason)."""
+    v_lo = float(w.lim.measuring_levels(float(w.seg_in.vdd[c]))[0])
+    reason = (f"{up} never falls to {_f(v_lo, 'V')}, where its fall time ends: against the "
+              "pull-up the driver's guaranteed sink cannot pull the line that low")
+    chk = make(bc, w.lim.source_edges, f"{up} has no fall time: {reason} ({basis})",
+               subject=up, details=details, reason=reason)
+    chk.margin = None
+    return chk
 
 
 def fall_basis(lim, d, info: dict, c: int, cb: float) -> tuple[str, dict]:

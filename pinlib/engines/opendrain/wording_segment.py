@@ -5,6 +5,8 @@ the checks of each line are worded by :mod:`.wording`."""
 
 from __future__ import annotations
 
+import math
+
 from pinlib.engines.opendrain.batchfigures import one
 from pinlib.engines.opendrain.explain import _UNITS, segment_notes
 from pinlib.engines.opendrain.inputs import (
@@ -48,6 +50,7 @@ def segment(ctx, seg_in: SegmentInputs, sb) -> Group:
     grp = w.grp
     for name, x in sb.figures.items():
         grp.figure(name, None if x is None else x.item(0), _unit(name))
+    _unbounded(grp)
     for ln in seg_in.lines.values():
         line(w, ln)
     _timing(w, sb)
@@ -58,6 +61,23 @@ def segment(ctx, seg_in: SegmentInputs, sb) -> Group:
     w.finish()  # every check worded
     segment_notes(grp, ctx.lim, seg_in, w.r_eff)
     return grp
+
+
+#: Figures that are infinite where a line never falls through its lower measuring level
+#: (the sink cannot pull it there against the pull-up): none in the result, the
+#: fall-time check says why.
+_FALL_FIGURES = ("fall_time", "fall_time_sda", "fall_time_scl")
+
+
+def _unbounded(grp: Group) -> None:
+    """An infinite fall time, and the effective clock worked out from it (0 Hz), are
+    none: a line that never falls has neither."""
+    for name in _FALL_FIGURES:
+        f = grp.figures.get(name)
+        if f is not None and f.value is not None and not math.isfinite(f.value):
+            grp.figure(name, None, f.unit)
+            if name == "fall_time_scl":
+                grp.figure("scl_frequency_effective", None, _unit("scl_frequency_effective"))
 
 
 def _timing(w: Words, sb) -> None:
@@ -72,11 +92,24 @@ def _timing(w: Words, sb) -> None:
                          f"{_f(clock, 'Hz')} clock (the specification's tLOW:tHIGH proportion, "
                          f"{lim.source_timing}); give the controller's t_low/t_high to use its "
                          "own")
-    f_eff = float(sb.figures["scl_frequency_effective"][0])
-    grp.add(make(bc, lim.source_f,
-                 f"SCL clock {_f(clock, 'Hz')} against {lim.label}'s {_f(lim.f_max, 'Hz')}; "
-                 f"with the edges the controller counts, the effective frequency is "
-                 f"{_f(f_eff, 'Hz')} (UM10204 rev. 6 §7.2.1 eq. 3)"))
+    f_eff = grp.figures["scl_frequency_effective"].value
+    eff = ("SCL never falls, so it has no effective frequency" if f_eff is None else
+           f"with the edges the controller counts, the effective frequency is "
+           f"{_f(f_eff, 'Hz')} (UM10204 rev. 6 §7.2.1 eq. 3)")
+    k, _ = row_corner(bc)
+    if k == 1:  # below the document's minimum clock (SMBus's fSMB min)
+        chk = make(bc, lim.source_f,
+                   f"SCL clock {_f(clock, 'Hz')} against {lim.label}'s minimum "
+                   f"{_f(lim.f_min, 'Hz')} (fSMB runs from {_f(lim.f_min, 'Hz')} to "
+                   f"{_f(lim.f_max, 'Hz')})")
+        if chk.status == "fail":
+            chk.fix = f"run the clock at {_f(lim.f_min, 'Hz')} or faster"
+            chk.message += f"; {chk.fix}"
+        grp.add(chk)
+    else:
+        grp.add(make(bc, lim.source_f,
+                     f"SCL clock {_f(clock, 'Hz')} against {lim.label}'s {_f(lim.f_max, 'Hz')}"
+                     f"; {eff}"))
     bc = w.peek("device-speed")
     if bc is not None:
         w.take("device-speed")

@@ -163,12 +163,14 @@ def high_level(vdd, rp, leakage):
     Returns
     -------
     float or numpy.ndarray
-        :math:`V_{DD} - R_p \\sum I_{leak}`. [V]
+        :math:`\\max(V_{DD} - R_p \\sum I_{leak},\\ 0)`. [V]
 
     Notes
     -----
     UM10204 rev. 6 §7.4 bounds Rp(max) by this drop against the 0.2·VDD high-level
-    noise margin (given there as a graph).
+    noise margin (given there as a graph).  The pins' leakage flows to ground through
+    them and cannot pull the line below it: where the drop would exceed the rail the
+    line sits at 0 V.
     """
     vdd = _non_negative(vdd, "vdd", "[V]")
     rp = _positive(rp, "rp", "[Ω]")
@@ -178,7 +180,7 @@ def high_level(vdd, rp, leakage):
 
 def _high_level(vdd, rp, leakage):
     """:func:`high_level` without its input checks."""
-    return vdd - rp * leakage
+    return np.maximum(vdd - rp * leakage, 0.0)
 
 
 def static_power(vdd, rp, r_sink, r_series=0.0):

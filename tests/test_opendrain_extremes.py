@@ -1,0 +1,120 @@
+"""The open-drain engine at the edges of physics and of the standards' ranges: a line
+the sink cannot pull down (no fall time, said in words, never ``inf``), a high level the
+leakage would drop below ground (held at 0 V), and an SMBus clock below fSMB's minimum."""
+
+from __future__ import annotations
+
+import json
+import math
+
+import pytest
+from test_opendrain import bus_result, fig, one_bus
+
+from pinlib.engines.limits import limits_for
+from pinlib.model.result import BusResult, DesignResult
+from pinlib.present.detail import detail_lines
+from pinlib.present.report import problem_line
+
+
+def _no_infinity(res: BusResult) -> None:
+    """Nothing in the result reads as an unbounded or missing number."""
+    text = json.dumps(res.to_json(), ensure_ascii=False)
+    assert "Infinity" not in text and "NaN" not in text
+    for _, signal, c in res.all_checks():
+        line = problem_line(res, None, signal, c)
+        assert " inf " not in f" {line} " and "inf s" not in line and "∞" not in line
+    lines = detail_lines(DesignResult("extremes", buses=[res]), 100)
+    assert not any("∞" in ln or "inf s" in ln for ln in lines)
+
+
+# --------------------------------------------------------------------- no fall time
+
+
+def test_a_line_the_sink_cannot_pull_down_has_no_fall_time(tmp_path):
+    # derived: 3.3 V across a 1 mΩ pull-up is 3.3 kA, against t-ctrl-3v3's 3 mA sink
+    # (test data, invented): the line stays near the rail and never reaches 0.3·VDD
+    res = bus_result(tmp_path, one_bus(pullup="1 mΩ"))
+    chk = res.check("fall-time")
+    assert chk.status == "fail"
+    assert chk.value is None and chk.margin is None
+    assert chk.reason and "never falls" in chk.reason
+    # published: UM10204 rev. 6 table 10, tf measured down to 0.3·VDD = 990 mV at 3.3 V
+    assert "990 mV" in chk.reason
+    assert "inf" not in chk.message and chk.fix and chk.message.count(chk.fix) == 1
+    for name in ("fall_time", "fall_time_sda", "fall_time_scl", "scl_frequency_effective"):
+        assert fig(res, name) is None, name
+    assert "no effective frequency" in res.check("scl-frequency").message
+    _no_infinity(res)
+
+
+def test_a_line_that_falls_keeps_its_figures(tmp_path):
+    res = bus_result(tmp_path, one_bus(pullup="2.2 kΩ"))
+    assert math.isfinite(fig(res, "fall_time")) and fig(res, "scl_frequency_effective") > 0
+    chk = res.check("fall-time")
+    assert chk.reason is None and "fall time at most" in chk.message
+
+
+# --------------------------------------------------------------------- high level
+
+
+@pytest.mark.parametrize("pullup", ["1 GΩ", "4.7 MΩ"])
+def test_leakage_holds_the_high_level_at_ground_not_below(tmp_path, pullup):
+    # derived: two pins of 1 µA (test data, invented) through 4.7 MΩ drop 9.4 V, through
+    # 1 GΩ 2 kV, both more than the 3.3 V rail; the pins sink the leakage to ground and
+    # cannot pull the line below it: the level is 0 V, the check fails
+    res = bus_result(tmp_path, one_bus(pullup=pullup))
+    assert fig(res, "v_oh") == 0.0
+    chk = res.check("v-oh")
+    assert chk.status == "fail" and chk.value == 0.0
+    assert "pulls the line to ground" in chk.message
+    assert "-" not in problem_line(res, None, "sda", chk).split("VOH")[1].split(",")[0]
+
+
+def test_a_high_level_above_ground_is_worded_as_before(tmp_path):
+    res = bus_result(tmp_path, one_bus(pullup="10 kΩ"))
+    assert "leakage ×" in res.check("v-oh").message
+    assert "ground" not in res.check("v-oh").message
+
+
+# --------------------------------------------------------------------- SMBus clock
+
+SMBUS = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+         '{ ref = "U9", part = "t-gauge-smbus" }']
+
+
+def _smbus(tmp_path, clock: str):
+    return bus_result(tmp_path, one_bus(protocol="smbus", mode="100k", pullup="2.2 kΩ",
+                                        devices=SMBUS, more=f'clock = "{clock}"'))
+
+
+def test_smbus_limits_carry_the_minimum_clock():
+    # published: SMBus specification 3.1, table 2: fSMB min 10 kHz in every class
+    for mode in ("100k", "400k", "1m"):
+        assert limits_for("smbus", mode).f_min == 10e3
+    # published: UM10204 rev. 6 table 10: fSCL min 0 Hz (no minimum) in every mode
+    assert limits_for("i2c", "fast").f_min is None
+
+
+def test_smbus_clock_below_its_minimum_fails(tmp_path):
+    chk = _smbus(tmp_path, "1 kHz").check("scl-frequency")
+    # published: SMBus specification 3.1, table 2: fSMB min 10 kHz
+    assert chk.status == "fail" and chk.limit == 10e3 and chk.value == 1e3
+    assert chk.margin == pytest.approx(-0.9)  # derived: (1 − 10)/10
+    assert "table 2 (fSMB)" in chk.source and "minimum 10 kHz" in chk.message
+    assert chk.fix and "10 kHz" in chk.fix
+
+
+def test_smbus_clock_inside_its_range_passes_against_the_nearer_limit(tmp_path):
+    # published: SMBus specification 3.1, table 2: fSMB 10–100 kHz for the 100 kHz class
+    low = _smbus(tmp_path, "10 kHz").check("scl-frequency")
+    assert low.status != "fail" and low.limit == 10e3
+    mid = _smbus(tmp_path, "80 kHz").check("scl-frequency")
+    # derived: 80 kHz is 20 % under the maximum and 700 % over the minimum
+    assert mid.status == "pass" and mid.limit == 100e3
+    assert mid.margin == pytest.approx(0.2)
+
+
+def test_i2c_has_no_minimum_clock(tmp_path):
+    # published: UM10204 rev. 6 table 10: fSCL min 0 Hz
+    chk = bus_result(tmp_path, one_bus(more='clock = "1 kHz"')).check("scl-frequency")
+    assert chk.status == "pass" and chk.limit == 400e3
