@@ -212,7 +212,7 @@ class Ranking:
                     x for x in (wc["bus"] if multi else None, wc.get("segment"), wc.get("line"),
                                 wc["id"], wc.get("subject") if not wc.get("line") else None) if x)
                 row = [str(i), c.part + (" *" if c.current else ""),
-                       c.status.upper() if c.status != "pass" else c.status,
+                       c.status.upper(),
                        "—" if c.worst_margin is None or not math.isfinite(c.worst_margin)
                        else f"{c.worst_margin * 100:+.1f} %", by if c.status != "error" else
                        (c.error or "")]
