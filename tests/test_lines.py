@@ -462,3 +462,27 @@ def test_docstring_examples():
                               lines.stripline_models)]
     assert sum(result.attempted for result in results) > 0
     assert sum(result.failed for result in results) == 0
+
+
+# ============================================================================ edges of methods
+
+
+@pytest.mark.parametrize("w_over_b", [13.0, 100.0, 474.0, 1000.0, 1e4])
+def test_cohn_stripline_stays_positive_for_very_wide_strips(w_over_b):
+    # common practice, no source: a strip far wider than its plane spacing is two
+    # parallel-plate lines side by side, Z0 -> eta0 b/(4 w sqrt(er)); Cohn's exact ratio
+    # adds the fringe ln 2 to pi w/(2b). Before, k = sech(pi w/2b) underflowed past
+    # w/b of about 474 and Z0 came out 0.
+    b, er = 1e-3, 4.2
+    z0 = float(stripline(w_over_b * b, b, er, method="cohn").z0)
+    x = math.pi * w_over_b / 2.0
+    plates = lines.ETA0 * b / (4.0 * w_over_b * b * math.sqrt(er))
+    assert z0 == pytest.approx(plates * x / (x + math.log(2.0)), rel=1e-12)
+
+
+def test_cohn_wide_form_meets_the_exact_ratio():
+    # the two ways of the ratio agree where they meet (x = 20) and on either side
+    x = np.linspace(15.0, 25.0, 11)
+    ex = np.exp(-x)
+    exact = lines._k_ratio(2.0 * ex / (1.0 + ex * ex), np.tanh(x))
+    np.testing.assert_allclose(exact, math.pi / (2.0 * (x + math.log(2.0))), rtol=1e-14)
