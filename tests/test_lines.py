@@ -486,3 +486,11 @@ def test_cohn_wide_form_meets_the_exact_ratio():
     ex = np.exp(-x)
     exact = lines._k_ratio(2.0 * ex / (1.0 + ex * ex), np.tanh(x))
     np.testing.assert_allclose(exact, math.pi / (2.0 * (x + math.log(2.0))), rtol=1e-14)
+
+
+def test_cohn_note_names_its_one_valid_thickness():
+    with pytest.warns(ValidityWarning) as caught:
+        stripline(0.15e-3, 0.5e-3, 4.2, 18e-6, method="cohn")
+    text = str(caught[0].message)
+    assert "holds only at t/b = 0" in text and "0 <= t/b <= 0" not in text
+    assert "t/b = 0.036" in text

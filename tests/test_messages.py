@@ -1916,6 +1916,22 @@ def _(env):
     return str(caught[0].message)
 
 
+def _cohn_point():
+    from pinlib.physics.lines import _COHN_SOURCE
+    return M.OFF_VALIDITY_POINT.format(
+        kind="stripline", method="cohn", count=1, size=1, range="t/b = 0", quantity="t/b",
+        first="0.035", source=_COHN_SOURCE + "; a thickness given is ignored")
+
+
+@case("OFF_VALIDITY_POINT", _cohn_point)
+def _(env):
+    from pinlib.core.errors import ValidityWarning
+    from pinlib.physics.lines import stripline
+    with pytest.warns(ValidityWarning) as caught:
+        stripline(0.2e-3, 1e-3, 4.2, 35e-6, method="cohn")
+    return str(caught[0].message)
+
+
 # derived: a 0.7 ns section on a 1 ns grid rounds to 1 step (43 % off, over the 5 % the
 # solver tolerates before it warns; a delay over one step is interpolated instead)
 @case("DELAY_ROUNDED", M.DELAY_ROUNDED.format(k=0, td="7e-10", steps=1, dt="1e-09",
@@ -2111,6 +2127,19 @@ def _(env):
     assert err.field == "bus.s.lines.sclk"
     assert "shortest section" in err.hint
     return err
+
+
+@case("GEOMETRY_WARNING", lambda: M.GEOMETRY_WARNING.format(name="g", text=_cohn_point()))
+def _(env):
+    # the geometry's name in front of its model's warning, once (a report names the line)
+    from pinlib.core.errors import ValidityWarning
+    from pinlib.engines.pushline.sections import stretches_of
+    head = HEAD.replace('kind = "microstrip"', 'kind = "stripline"').replace(
+        'height = "0.18 mm"', 'spacing = "1 mm"\nthickness = "35 µm"\nmethod = "cohn"')
+    design = env.design(SPI_BUS, head=head)
+    with pytest.warns(ValidityWarning) as caught:
+        stretches_of(design.buses[0].lines["sclk"].sections)
+    return str(caught[0].message)
 
 
 # ---------------------------------------------------------------- bus engines: spi

@@ -327,6 +327,9 @@ UNKNOWN_LINE_KIND = "unknown line kind"
 # a ValidityWarning, not an error
 OUTSIDE_VALIDITY = ("{kind} method '{method}': {count} of {size} input(s) outside {range} "
                     "(e.g. {quantity} = {first}); source: {source}")
+# a ValidityWarning, not an error: a method that holds at one value only (t = 0)
+OFF_VALIDITY_POINT = ("{kind} method '{method}' holds only at {range}: {count} of {size} "
+                      "input(s) differ (e.g. {quantity} = {first}); source: {source}")
 
 # pinlib/physics/driver.py
 NOT_NUMBERS = "not a number or an array of numbers"
@@ -361,6 +364,8 @@ NO_DRIVER_ON_LINE = "no device drives this line"
 PIN_VALUE_AT_SUPPLY = "{part} as {ref} on bus '{bus}' at its supply {vdd} ({where})"
 MET_EVALUATING_BUS = "met evaluating bus '{bus}', in the value '{field}' computed from it"
 TOO_MANY_TIME_STEPS = "the line's waveform would need {steps} time steps (at most {limit})"
+# a ValidityWarning of a trace model given again with the geometry it is about
+GEOMETRY_WARNING = "geometry '{name}': {text}"
 # pinlib/engines/spi/
 UNKNOWN_SPI_MODE = "unknown SPI mode"
 NEGATIVE_PERIOD_COEFFICIENT = "a margin's period coefficient must not be negative"

@@ -65,7 +65,10 @@ class ValidityRange:
         return inside
 
     def describe(self) -> str:
-        """The range as text, e.g. ``'0.01 <= w/h <= 100'``."""
+        """The range as text, e.g. ``'0.01 <= w/h <= 100'``; ``'t/b = 0'`` for a range of
+        one value."""
+        if self.low is not None and self.low == self.high:
+            return f"{self.quantity} = {self.low:g}"
         parts = []
         if self.low is not None:
             parts.append(f"{self.low:g} {'<=' if self.low_inclusive else '<'} ")
@@ -73,6 +76,20 @@ class ValidityRange:
         if self.high is not None:
             parts.append(f" {'<=' if self.high_inclusive else '<'} {self.high:g}")
         return "".join(parts)
+
+    def outside_text(self, kind: str, method: str, x: np.ndarray) -> str | None:
+        """The warning for the inputs ``x`` outside the range, or None when all lie
+        inside: how many, the first of them, the range and its source."""
+        x = np.asarray(x, dtype=float)
+        outside = ~self.contains(x)
+        if not np.any(outside):
+            return None
+        first = float(x[outside].flat[0]) if x.ndim else float(x)
+        point = self.low is not None and self.low == self.high
+        return (M.OFF_VALIDITY_POINT if point else M.OUTSIDE_VALIDITY).format(
+            kind=kind, method=method, count=int(np.count_nonzero(outside)), size=x.size,
+            range=self.describe(), quantity=self.quantity, first=f"{first:.4g}",
+            source=self.source)
 
 
 MICROSTRIP_METHODS = ("hammerstad-jensen", "ipc-2141")
@@ -169,17 +186,10 @@ def _quantities(kind: str, w, h, er, t) -> dict[str, np.ndarray]:
 
 def _warn_outside(kind: str, method: str, q: dict[str, np.ndarray]) -> None:
     for rng in VALIDITY[kind][method]:
-        x = q[rng.quantity]
-        outside = ~rng.contains(x)
-        if np.any(outside):
-            first = float(x[outside].flat[0]) if x.ndim else float(x)
-            warnings.warn(
-                ValidityWarning(M.OUTSIDE_VALIDITY.format(
-                    kind=kind, method=method, count=int(np.count_nonzero(outside)),
-                    size=x.size, range=rng.describe(), quantity=rng.quantity,
-                    first=f"{first:.4g}", source=rng.source)),
-                stacklevel=3,  # the caller of microstrip()/stripline()
-            )
+        text = rng.outside_text(kind, method, q[rng.quantity])
+        if text is not None:
+            # stacklevel 3: the caller of microstrip()/stripline()
+            warnings.warn(ValidityWarning(text), stacklevel=3)
 
 
 def line_methods(kind: str, w, h, er, t=0.0) -> list[str]:
