@@ -467,6 +467,25 @@ def test_docstring_examples():
 # ============================================================================ edges of methods
 
 
+def test_ipc_microstrip_follows_its_formula():
+    # from memory: the IPC-2141 (IPC-D-317A) microstrip form as commonly quoted,
+    # Z0 = 87/sqrt(er + 1.41) ln(5.98h/(0.8w + t)); by hand for w = 0.2 mm, h = 0.18 mm,
+    # t = 35 µm, er = 4.2: 87/2.368544 * ln(1.0764/0.195) = 36.73143 * 1.708378 = 62.751 Ω
+    m = microstrip(0.2e-3, 0.18e-3, 4.2, 35e-6, method="ipc-2141")
+    assert float(m.z0) == pytest.approx(62.751, abs=1e-3)
+
+
+def test_ipc_formulas_reach_zero_at_their_widest_width():
+    # the width the guard names is where the logarithm's argument is 1 (Z0 = 0 there)
+    for kind, model, h in (("microstrip", microstrip, 0.1e-3), ("stripline", stripline, 0.4e-3)):
+        w = lines.widest_width(kind, "ipc-2141", h, 35e-6)
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", ValidityWarning)
+            assert abs(float(model(w * (1 - 1e-9), h, 4.2, 35e-6, method="ipc-2141").z0)) < 1e-6
+            assert np.isnan(model(w * 1.01, h, 4.2, 35e-6, method="ipc-2141").z0)
+    assert lines.widest_width("microstrip", "hammerstad-jensen", 0.1e-3, 0.0) is None
+
+
 @pytest.mark.parametrize("w_over_b", [13.0, 100.0, 474.0, 1000.0, 1e4])
 def test_cohn_stripline_stays_positive_for_very_wide_strips(w_over_b):
     # common practice, no source: a strip far wider than its plane spacing is two

@@ -154,7 +154,8 @@ def stripline(w, b, er, t=0.0, *, method: str = "wheeler") -> LineModel:
     thickness given is ignored, with a warning.
 
     **IPC-2141**: :math:`Z_0 = \\frac{60}{\\sqrt{\\varepsilon_r}}\\ln\\frac{1.9b}{0.8w + t}`,
-    quoted for w/(b - t) < 0.35 and t/b < 0.25. NaN where 1.9b <= 0.8w + t.
+    quoted for w/(b - t) < 0.35 and t/b < 0.25. NaN where 1.9b <= 0.8w + t; a
+    design using such a geometry is refused when it is loaded.
 
     Why Wheeler is the default: a 50 Ω stripline in FR-4 needs w/(b - t) of about 0.35–0.5,
     at or beyond the edge of the IPC formula's range, whose error grows outside it; Cohn's

@@ -14,7 +14,7 @@ from pinlib.core.valueclass import value_class
 from pinlib.physics.lines.model import _as_float_array, _require, _wheeler_width
 
 __all__ = ["ValidityRange", "VALIDITY", "MICROSTRIP_METHODS", "STRIPLINE_METHODS",
-           "line_methods"]
+           "line_methods", "LOG_FORMS", "widest_width"]
 
 _HJ_SOURCE = (
     "Hammerstad & Jensen, 'Accurate models for microstrip computer-aided design', "
@@ -130,6 +130,24 @@ VALIDITY: dict[str, dict[str, tuple[ValidityRange, ...]]] = {
 """Validity ranges of each method, by line kind and method name."""
 
 _METHODS = {"microstrip": MICROSTRIP_METHODS, "stripline": STRIPLINE_METHODS}
+
+LOG_FORMS: dict[tuple[str, str], tuple[float, str]] = {
+    ("microstrip", "ipc-2141"): (5.98, "ln(5.98·h/(0.8·w + t))"),
+    ("stripline", "ipc-2141"): (1.9, "ln(1.9·b/(0.8·w + t))"),
+}
+"""The closed forms Z0 = A·ln(a·h/(0.8·w + t)), by (kind, method): the factor a and the
+logarithm as text. Their Z0 falls to 0 as 0.8·w + t rises to a·h and has no value from
+there on (the model returns NaN)."""
+
+
+def widest_width(kind: str, method: str, h: float, t: float) -> float | None:
+    """The trace width at which the method's formula gives Z0 = 0 (no impedance at or above
+    it), (a·h - t)/0.8 for the forms in :data:`LOG_FORMS`; None for a method without such
+    a bound. Not above 0 when the thickness alone reaches a·h. [m]"""
+    form = LOG_FORMS.get((kind, method))
+    if form is None:
+        return None
+    return (form[0] * h - t) / 0.8
 
 
 # --------------------------------------------------------------------------- input checks
