@@ -462,3 +462,54 @@ def test_docstring_examples():
                               lines.stripline_models)]
     assert sum(result.attempted for result in results) > 0
     assert sum(result.failed for result in results) == 0
+
+
+# ============================================================================ edges of methods
+
+
+def test_ipc_microstrip_follows_its_formula():
+    # from memory: the IPC-2141 (IPC-D-317A) microstrip form as commonly quoted,
+    # Z0 = 87/sqrt(er + 1.41) ln(5.98h/(0.8w + t)); by hand for w = 0.2 mm, h = 0.18 mm,
+    # t = 35 µm, er = 4.2: 87/2.368544 * ln(1.0764/0.195) = 36.73143 * 1.708378 = 62.751 Ω
+    m = microstrip(0.2e-3, 0.18e-3, 4.2, 35e-6, method="ipc-2141")
+    assert float(m.z0) == pytest.approx(62.751, abs=1e-3)
+
+
+def test_ipc_formulas_reach_zero_at_their_widest_width():
+    # the width the guard names is where the logarithm's argument is 1 (Z0 = 0 there)
+    for kind, model, h in (("microstrip", microstrip, 0.1e-3), ("stripline", stripline, 0.4e-3)):
+        w = lines.widest_width(kind, "ipc-2141", h, 35e-6)
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", ValidityWarning)
+            assert abs(float(model(w * (1 - 1e-9), h, 4.2, 35e-6, method="ipc-2141").z0)) < 1e-6
+            assert np.isnan(model(w * 1.01, h, 4.2, 35e-6, method="ipc-2141").z0)
+    assert lines.widest_width("microstrip", "hammerstad-jensen", 0.1e-3, 0.0) is None
+
+
+@pytest.mark.parametrize("w_over_b", [13.0, 100.0, 474.0, 1000.0, 1e4])
+def test_cohn_stripline_stays_positive_for_very_wide_strips(w_over_b):
+    # common practice, no source: a strip far wider than its plane spacing is two
+    # parallel-plate lines side by side, Z0 -> eta0 b/(4 w sqrt(er)); Cohn's exact ratio
+    # adds the fringe ln 2 to pi w/(2b). Before, k = sech(pi w/2b) underflowed past
+    # w/b of about 474 and Z0 came out 0.
+    b, er = 1e-3, 4.2
+    z0 = float(stripline(w_over_b * b, b, er, method="cohn").z0)
+    x = math.pi * w_over_b / 2.0
+    plates = lines.ETA0 * b / (4.0 * w_over_b * b * math.sqrt(er))
+    assert z0 == pytest.approx(plates * x / (x + math.log(2.0)), rel=1e-12)
+
+
+def test_cohn_wide_form_meets_the_exact_ratio():
+    # the two ways of the ratio agree where they meet (x = 20) and on either side
+    x = np.linspace(15.0, 25.0, 11)
+    ex = np.exp(-x)
+    exact = lines._k_ratio(2.0 * ex / (1.0 + ex * ex), np.tanh(x))
+    np.testing.assert_allclose(exact, math.pi / (2.0 * (x + math.log(2.0))), rtol=1e-14)
+
+
+def test_cohn_note_names_its_one_valid_thickness():
+    with pytest.warns(ValidityWarning) as caught:
+        stripline(0.15e-3, 0.5e-3, 4.2, 18e-6, method="cohn")
+    text = str(caught[0].message)
+    assert "holds only at t/b = 0" in text and "0 <= t/b <= 0" not in text
+    assert "t/b = 0.036" in text

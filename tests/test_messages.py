@@ -1045,6 +1045,52 @@ def _(env):
     return _fails(lambda e: e.design(SPI_BUS, head=head), env)
 
 
+# derived: 0.8 * 1 mm + 35 µm = 835 µm against 5.98 * 0.1 mm = 598 µm; the widest width
+# (598 - 35)/0.8 = 704 µm
+_WIDE_IPC = HEAD.replace('width = "0.2 mm"', 'width = "1 mm"').replace(
+    'height = "0.18 mm"', 'height = "0.1 mm"\nmethod = "ipc-2141"')
+
+
+@case("LINE_FORMULA_NO_IMPEDANCE", M.LINE_FORMULA_NO_IMPEDANCE.format(
+    kind="microstrip", method="ipc-2141", why=M.LINE_FORMULA_LOG_LIMIT.format(
+        form="ln(5.98·h/(0.8·w + t))", wide="835 µm", factor=5.98, h="height",
+        limit="598 µm")))
+def _(env):
+    err = _fails(lambda e: e.design(SPI_BUS, head=_WIDE_IPC), env)
+    assert err.field == "board.geometry.g.width" and err.line == 6  # width = "1 mm"
+    assert "704 µm" in err.expected
+    return err
+
+
+@case("LINE_FORMULA_LOG_LIMIT", M.LINE_FORMULA_LOG_LIMIT.format(
+    form="ln(1.9·b/(0.8·w + t))", wide="835 µm", factor=1.9, h="b", limit="570 µm"))
+def _(env):
+    # derived: a stripline 0.3 mm plane to plane: 1.9 * 0.3 mm = 570 µm
+    head = _WIDE_IPC.replace('kind = "microstrip"', 'kind = "stripline"').replace(
+        'height = "0.1 mm"', 'spacing = "0.3 mm"')
+    return str(_fails(lambda e: e.design(SPI_BUS, head=head), env))
+
+
+@case("LINE_FORMULA_NOT_FINITE")
+def _(env):
+    # no method named in a design reaches it as shipped (Cohn's ratio holds for any
+    # width): a model that gives NaN stands in for a method that could
+    import numpy as np
+
+    from pinlib.physics import lines as tl
+    env.monkeypatch.setitem(tl._STRIPLINE_IMPL, "cohn", lambda w, b, er, t: (np.nan, er))
+    head = HEAD.replace('kind = "microstrip"', 'kind = "stripline"').replace(
+        'height = "0.18 mm"', 'spacing = "0.5 mm"\nmethod = "cohn"')
+    return str(_fails(lambda e: e.design(SPI_BUS, head=head), env))
+
+
+@case("USE_DEFAULT_LINE_METHOD", M.USE_DEFAULT_LINE_METHOD.format(
+    default="hammerstad-jensen", method="ipc-2141",
+    range="0.01 <= w/h <= 100 and 1 <= er <= 128", quoted="0.1 < w/h < 2 and 1 < er < 15"))
+def _(env):
+    return str(_fails(lambda e: e.design(SPI_BUS, head=_WIDE_IPC), env))
+
+
 @case("ABSTRACT_ON_BOARD")
 def _(env):
     return _fails(lambda e: e.design(_device("i2c-peripheral")), env)
@@ -1916,6 +1962,22 @@ def _(env):
     return str(caught[0].message)
 
 
+def _cohn_point():
+    from pinlib.physics.lines import _COHN_SOURCE
+    return M.OFF_VALIDITY_POINT.format(
+        kind="stripline", method="cohn", count=1, size=1, range="t/b = 0", quantity="t/b",
+        first="0.035", source=_COHN_SOURCE + "; a thickness given is ignored")
+
+
+@case("OFF_VALIDITY_POINT", _cohn_point)
+def _(env):
+    from pinlib.core.errors import ValidityWarning
+    from pinlib.physics.lines import stripline
+    with pytest.warns(ValidityWarning) as caught:
+        stripline(0.2e-3, 1e-3, 4.2, 35e-6, method="cohn")
+    return str(caught[0].message)
+
+
 # derived: a 0.7 ns section on a 1 ns grid rounds to 1 step (43 % off, over the 5 % the
 # solver tolerates before it warns; a delay over one step is interpolated instead)
 @case("DELAY_ROUNDED", M.DELAY_ROUNDED.format(k=0, td="7e-10", steps=1, dt="1e-09",
@@ -2111,6 +2173,29 @@ def _(env):
     assert err.field == "bus.s.lines.sclk"
     assert "shortest section" in err.hint
     return err
+
+
+@case("NO_FINITE_RECORD")
+def _(env):
+    # the design loader refuses a geometry with no impedance; a NaN delay reaching the
+    # solver anyway is named as such, never as "nan time steps"
+    from pinlib.engines.pushline.waves import _grid
+    err = _fails(lambda e: _grid(float("nan"), 1e-12), env)
+    assert "nan" not in err.message.lower()
+    return err
+
+
+@case("GEOMETRY_WARNING", lambda: M.GEOMETRY_WARNING.format(name="g", text=_cohn_point()))
+def _(env):
+    # the geometry's name in front of its model's warning, once (a report names the line)
+    from pinlib.core.errors import ValidityWarning
+    from pinlib.engines.pushline.sections import stretches_of
+    head = HEAD.replace('kind = "microstrip"', 'kind = "stripline"').replace(
+        'height = "0.18 mm"', 'spacing = "1 mm"\nthickness = "35 µm"\nmethod = "cohn"')
+    design = env.design(SPI_BUS, head=head)
+    with pytest.warns(ValidityWarning) as caught:
+        stretches_of(design.buses[0].lines["sclk"].sections)
+    return str(caught[0].message)
 
 
 # ---------------------------------------------------------------- bus engines: spi

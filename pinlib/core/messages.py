@@ -171,6 +171,12 @@ LOOKED_FOR = "looked for {path}"
 MICROSTRIP_NEEDS_HEIGHT = "a microstrip needs its height above the plane"
 STRIPLINE_NEEDS_SPACING = "a stripline needs spacing (plane to plane) or height (to each plane)"
 SPACING_NOT_ABOVE_COPPER = "the plane-to-plane spacing leaves no room for the copper"
+LINE_FORMULA_NO_IMPEDANCE = "the {kind} method '{method}' gives no impedance here: {why}"
+LINE_FORMULA_LOG_LIMIT = ("its Z0 has the factor {form}, which is 0 or less when "
+                          "0.8·width + thickness ({wide}) is not below {factor:g}·{h} ({limit})")
+LINE_FORMULA_NOT_FINITE = "its formula gives no finite positive Z0 for these dimensions"
+USE_DEFAULT_LINE_METHOD = ("set method = \"{default}\" (the default: or drop the key), "
+                           "which holds over {range}; '{method}' is quoted for {quoted}")
 ABSTRACT_ON_BOARD = "an abstract class cannot be placed on a board"
 CABLE_AS_DEVICE = "a cable class belongs in `cables` or a line's sections"
 SECTIONS_OR_STRETCH = "give either sections or one stretch (length, geometry...), not both"
@@ -327,6 +333,9 @@ UNKNOWN_LINE_KIND = "unknown line kind"
 # a ValidityWarning, not an error
 OUTSIDE_VALIDITY = ("{kind} method '{method}': {count} of {size} input(s) outside {range} "
                     "(e.g. {quantity} = {first}); source: {source}")
+# a ValidityWarning, not an error: a method that holds at one value only (t = 0)
+OFF_VALIDITY_POINT = ("{kind} method '{method}' holds only at {range}: {count} of {size} "
+                      "input(s) differ (e.g. {quantity} = {first}); source: {source}")
 
 # pinlib/physics/driver.py
 NOT_NUMBERS = "not a number or an array of numbers"
@@ -361,6 +370,10 @@ NO_DRIVER_ON_LINE = "no device drives this line"
 PIN_VALUE_AT_SUPPLY = "{part} as {ref} on bus '{bus}' at its supply {vdd} ({where})"
 MET_EVALUATING_BUS = "met evaluating bus '{bus}', in the value '{field}' computed from it"
 TOO_MANY_TIME_STEPS = "the line's waveform would need {steps} time steps (at most {limit})"
+# a ValidityWarning of a trace model given again with the geometry it is about
+GEOMETRY_WARNING = "geometry '{name}': {text}"
+NO_FINITE_RECORD = ("the line's waveform has no finite length: a section's delay or impedance "
+                    "is not a number")
 # pinlib/engines/spi/
 UNKNOWN_SPI_MODE = "unknown SPI mode"
 NEGATIVE_PERIOD_COEFFICIENT = "a margin's period coefficient must not be negative"

@@ -175,17 +175,9 @@ def _inputs(w, h, er, s, t, hname: str):
 
 def _warn_outside(kind: str, q: dict[str, np.ndarray]) -> None:
     for rng in COUPLED_VALIDITY[kind]:
-        x = np.asarray(q[rng.quantity])
-        outside = ~rng.contains(x)
-        if np.any(outside):
-            first = float(x[outside].flat[0]) if x.ndim else float(x)
-            warnings.warn(
-                ValidityWarning(M.OUTSIDE_VALIDITY.format(
-                    kind=kind, method=_METHOD[kind], count=int(np.count_nonzero(outside)),
-                    size=x.size, range=rng.describe(), quantity=rng.quantity,
-                    first=f"{first:.4g}", source=rng.source)),
-                stacklevel=3,
-            )
+        text = rng.outside_text(kind, _METHOD[kind], q[rng.quantity])
+        if text is not None:
+            warnings.warn(ValidityWarning(text), stacklevel=3)
 
 
 # --------------------------------------------------------------------------- microstrip

@@ -126,7 +126,8 @@ def _line_key(signal, line, drivers, loads, receivers, *rest) -> tuple | None:
 def _analyse_line(signal, line, drivers, loads, receivers, clock, clock_line, warn_margin,
                   bus_id) -> LineAnalysis:
     res = LineResult(signal=signal)
-    # Validity warnings of the trace models and of the solver become notes of the line.
+    # Validity warnings of the trace models and of the solver become notes of the line
+    # (the line's own: a report names the line beside them, so they do not).
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
         try:
@@ -137,7 +138,7 @@ def _analyse_line(signal, line, drivers, loads, receivers, clock, clock_line, wa
             raise InputError(exc.problem, field=where, value=exc.value,
                              hint=exc.hint) from None
     for w in caught:
-        text = f"{signal}: {w.message}"
+        text = str(w.message)
         if text not in res.notes:
             res.notes.append(text)
     return a

@@ -4,8 +4,10 @@ electrically long or short, lumped or distributed."""
 from __future__ import annotations
 
 import math
+import warnings
 from collections.abc import Sequence
 
+from pinlib.core import messages as M
 from pinlib.core.valueclass import value_class
 from pinlib.engines.pushline.rules import (
     LONG_LINE_FRACTION,
@@ -41,13 +43,23 @@ class Stretch:
 
 
 def _geometry_model(g):
-    method = g.method
-    if g.kind == "microstrip":
-        kw = {"method": method} if method else {}
-        return tl.microstrip(g.width, g.height, g.er, g.thickness, **kw)
-    b = g.spacing if g.spacing is not None else 2.0 * g.height + g.thickness
-    kw = {"method": method} if method else {}
-    return tl.stripline(g.width, b, g.er, g.thickness, **kw)
+    """The trace model of geometry ``g``; a validity warning is given again with the
+    geometry's name in front, as the open-drain engine words it."""
+    kw = {"method": g.method} if g.method else {}
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", tl.ValidityWarning)
+        if g.kind == "microstrip":
+            model = tl.microstrip(g.width, g.height, g.er, g.thickness, **kw)
+        else:
+            b = g.spacing if g.spacing is not None else 2.0 * g.height + g.thickness
+            model = tl.stripline(g.width, b, g.er, g.thickness, **kw)
+    for w in caught:
+        if issubclass(w.category, tl.ValidityWarning):
+            warnings.warn(tl.ValidityWarning(M.GEOMETRY_WARNING.format(
+                name=g.name, text=w.message)), stacklevel=3)
+        else:
+            warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
+    return model
 
 
 def stretches_of(sections: Sequence[Section]) -> list[Stretch]:

@@ -92,7 +92,12 @@ class _TooManySteps(InputError):
 
 def _grid(t_end: float, dt: float) -> np.ndarray:
     steps = t_end / dt
-    if not steps <= MAX_TIME_STEPS:  # also NaN: checked before anything is allocated
+    if not math.isfinite(steps):  # a NaN delay or impedance: no count of steps to name
+        raise _TooManySteps(
+            M.NO_FINITE_RECORD,
+            hint="give each section a geometry its method gives an impedance for, or a "
+                 "capacitance and delay per length")
+    if not steps <= MAX_TIME_STEPS:  # checked before anything is allocated
         raise _TooManySteps(
             M.TOO_MANY_TIME_STEPS.format(steps=f"{steps:.3g}", limit=f"{MAX_TIME_STEPS:,}"),
             value=f"{format_si(t_end, 's')} in steps of {format_si(dt, 's')}",

@@ -3,6 +3,9 @@
 
 from __future__ import annotations
 
+import math
+import warnings
+
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, PinlibError
 from pinlib.core.quantity import format_si
@@ -29,6 +32,7 @@ class _Resolver:
         self.swaps = swaps
         self.swapped: set[str] = set()
         self.geometries: dict[str, Geometry] = {}
+        self.checked: set[str] = set()  # geometries a section uses whose impedance holds
 
     def err(self, problem, loc, **kw):
         dotted = dotted_path(loc)
@@ -98,6 +102,9 @@ class _Resolver:
                                               "[board.geometry.NAME]"))
             if t.capacitance is not None or t.delay is not None:
                 raise err(M.GEOMETRY_OR_PER_LENGTH, loc + ("capacitance",))
+            if t.geometry not in self.checked:
+                _check_impedance(geometries[t.geometry], self.err)
+                self.checked.add(t.geometry)
             return (Section(t.length, geometries[t.geometry]),)
         if t.capacitance is None:
             raise err(M.TRACE_NEEDS_GEOMETRY, loc + ("geometry",),
@@ -141,3 +148,53 @@ def _geometries(raw: RawDesign, err) -> dict[str, Geometry]:
                       value=format_si(g.spacing, "m"),
                       expected=f"more than the copper thickness, {format_si(g.thickness, 'm')}")
     return geometries
+
+
+def _check_impedance(g: Geometry, err) -> None:
+    """Refuse a geometry a line uses whose named method gives no positive impedance (the
+    IPC-2141 forms past their logarithm's zero); a geometry merely outside a method's
+    range gives numbers and a note.  The default methods and an unknown method (reported
+    when the design is checked) are left alone."""
+    from pinlib.physics import lines as tl  # numpy's models: only for a named method
+
+    methods = tl.MICROSTRIP_METHODS if g.kind == "microstrip" else tl.STRIPLINE_METHODS
+    if g.method is None or g.method == methods[0] or g.method not in methods:
+        return
+    stripline = g.kind == "stripline"
+    h = (g.spacing if g.spacing is not None else 2.0 * g.height + g.thickness) if stripline \
+        else g.height
+    model = tl.stripline if stripline else tl.microstrip
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", tl.ValidityWarning)
+        z0 = float(model(g.width, h, g.er, g.thickness, method=g.method).z0)
+    if math.isfinite(z0) and z0 > 0:
+        return
+    loc = ("board", "geometry", g.name)
+    hname = "b" if stripline else "height"
+    field, value = "width", format_si(g.width, "m")
+    expected = "a geometry the method gives an impedance for"
+    widest = tl.widest_width(g.kind, g.method, h, g.thickness)
+    if widest is None:
+        why = M.LINE_FORMULA_NOT_FINITE
+    else:
+        factor, form = tl.LOG_FORMS[(g.kind, g.method)]
+        why = M.LINE_FORMULA_LOG_LIMIT.format(
+            form=form, wide=format_si(0.8 * g.width + g.thickness, "m"), factor=factor,
+            h=hname, limit=format_si(factor * h, "m"))
+        if widest > 0:
+            expected = (f"a width below {format_si(widest, 'm')} at this "
+                        f"{'plane spacing' if stripline else 'height'} and thickness")
+        else:
+            field, value = "thickness", format_si(g.thickness, "m")
+            expected = f"a thickness below {factor:g}·{hname}, {format_si(factor * h, 'm')}"
+    default = methods[0]
+    hint = M.USE_DEFAULT_LINE_METHOD.format(
+        default=default, method=g.method,
+        range=_ranges(tl.VALIDITY[g.kind][default]),
+        quoted=_ranges(tl.VALIDITY[g.kind][g.method]))
+    raise err(M.LINE_FORMULA_NO_IMPEDANCE.format(kind=g.kind, method=g.method, why=why),
+              loc + (field,), value=value, expected=expected, hint=hint)
+
+
+def _ranges(ranges) -> str:
+    return " and ".join(r.describe() for r in ranges)

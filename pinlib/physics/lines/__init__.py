@@ -56,6 +56,7 @@ from pinlib.physics.lines.validity import (  # noqa: F401
     _IPC_SOURCE,
     _METHODS,
     _WHEELER_SOURCE,
+    LOG_FORMS,
     MICROSTRIP_METHODS,
     STRIPLINE_METHODS,
     VALIDITY,
@@ -65,6 +66,7 @@ from pinlib.physics.lines.validity import (  # noqa: F401
     _quantities,
     _warn_outside,
     line_methods,
+    widest_width,
 )
 
 __all__ = [
@@ -79,4 +81,6 @@ __all__ = [
     "stripline",
     "from_per_length",
     "line_methods",
+    "LOG_FORMS",
+    "widest_width",
 ]

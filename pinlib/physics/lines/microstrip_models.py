@@ -131,7 +131,8 @@ def microstrip(w, h, er, t=0.0, *, method: str = "hammerstad-jensen") -> LineMod
     \\ln\\frac{5.98h}{0.8w + t}`. The standard's formula gives no effective permittivity;
     here ``er_eff`` (and so ``tpd``, ``c``, ``l``) is the Hammerstad–Jensen value for the
     same w, h, er, t, so the two methods differ only in Z0. Where 5.98h <= 0.8w + t the
-    logarithm is not positive and Z0 is NaN.
+    logarithm is not positive and Z0 is NaN; a design using such a geometry is refused
+    when it is loaded (see :func:`widest_width`).
 
     Per length: :math:`t_{pd} = \\sqrt{\\varepsilon_{eff}}/c_0`, :math:`C = t_{pd}/Z_0`,
     :math:`L = t_{pd} Z_0` (lossless TEM line).

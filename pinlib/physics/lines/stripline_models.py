@@ -39,13 +39,27 @@ def _k_ratio(k: np.ndarray, kp: np.ndarray) -> np.ndarray:
     return _agm(np.ones_like(k), k) / _agm(np.ones_like(kp), kp)
 
 
+# Above this pi*w/(2b) the Cohn ratio is taken from K(k') = ln(4/k) (see below).
+_COHN_WIDE_X = 20.0
+
+
 def _cohn_stripline(w, b, er, t) -> tuple[np.ndarray, np.ndarray]:
     x = math.pi * w / (2.0 * b)
     # sech(x) as 2e^-x/(1 + e^-2x): no overflow of cosh for very wide strips
     ex = np.exp(-x)
     k = 2.0 * ex / (1.0 + ex * ex)
     kp = np.tanh(x)
-    z0 = ETA0 / (4.0 * np.sqrt(er)) * _k_ratio(k, kp)
+    ratio = _k_ratio(k, kp)
+    # For a wide strip k underflows (to 0 past x of about 745, w/b of about 474) and the
+    # AGM ratio with it, giving Z0 = 0. There K(k) = pi/2 and K(k') = ln(4/k) to a
+    # relative k^2/4 (from memory: the standard expansion of K near modulus 1), and
+    # ln(4/k) = x + ln 2 + ln(1 + e^-2x): above x = 20 the ratio is pi/(2(x + ln 2)),
+    # within 1e-17.
+    wide = x > _COHN_WIDE_X
+    if np.any(wide):
+        ratio = np.where(wide, math.pi / (2.0 * (np.where(wide, x, 1.0) + math.log(2.0))),
+                         ratio)
+    z0 = ETA0 / (4.0 * np.sqrt(er)) * ratio
     return z0, er
 
 
@@ -134,11 +148,14 @@ def stripline(w, b, er, t=0.0, *, method: str = "wheeler") -> LineModel:
 
     (Cohn writes :math:`30\\pi` for :math:`\\eta_0/4`). The ratio of complete elliptic
     integrals is computed exactly with the arithmetic-geometric mean,
-    K(k)/K(k') = AGM(1, k)/AGM(1, k'); no scipy is needed. A thickness given is
-    ignored, with a warning.
+    K(k)/K(k') = AGM(1, k)/AGM(1, k'); no scipy is needed. Above
+    :math:`\\pi w/2b = 20` the ratio is :math:`\\pi/(2(\\pi w/2b + \\ln 2))` (K(k') = ln(4/k)
+    for small k), so a very wide strip keeps a positive Z0 where sech underflows. A
+    thickness given is ignored, with a warning.
 
     **IPC-2141**: :math:`Z_0 = \\frac{60}{\\sqrt{\\varepsilon_r}}\\ln\\frac{1.9b}{0.8w + t}`,
-    quoted for w/(b - t) < 0.35 and t/b < 0.25. NaN where 1.9b <= 0.8w + t.
+    quoted for w/(b - t) < 0.35 and t/b < 0.25. NaN where 1.9b <= 0.8w + t; a
+    design using such a geometry is refused when it is loaded.
 
     Why Wheeler is the default: a 50 Ω stripline in FR-4 needs w/(b - t) of about 0.35–0.5,
     at or beyond the edge of the IPC formula's range, whose error grows outside it; Cohn's

@@ -14,7 +14,7 @@ from pinlib.core.valueclass import value_class
 from pinlib.physics.lines.model import _as_float_array, _require, _wheeler_width
 
 __all__ = ["ValidityRange", "VALIDITY", "MICROSTRIP_METHODS", "STRIPLINE_METHODS",
-           "line_methods"]
+           "line_methods", "LOG_FORMS", "widest_width"]
 
 _HJ_SOURCE = (
     "Hammerstad & Jensen, 'Accurate models for microstrip computer-aided design', "
@@ -65,7 +65,10 @@ class ValidityRange:
         return inside
 
     def describe(self) -> str:
-        """The range as text, e.g. ``'0.01 <= w/h <= 100'``."""
+        """The range as text, e.g. ``'0.01 <= w/h <= 100'``; ``'t/b = 0'`` for a range of
+        one value."""
+        if self.low is not None and self.low == self.high:
+            return f"{self.quantity} = {self.low:g}"
         parts = []
         if self.low is not None:
             parts.append(f"{self.low:g} {'<=' if self.low_inclusive else '<'} ")
@@ -73,6 +76,20 @@ class ValidityRange:
         if self.high is not None:
             parts.append(f" {'<=' if self.high_inclusive else '<'} {self.high:g}")
         return "".join(parts)
+
+    def outside_text(self, kind: str, method: str, x: np.ndarray) -> str | None:
+        """The warning for the inputs ``x`` outside the range, or None when all lie
+        inside: how many, the first of them, the range and its source."""
+        x = np.asarray(x, dtype=float)
+        outside = ~self.contains(x)
+        if not np.any(outside):
+            return None
+        first = float(x[outside].flat[0]) if x.ndim else float(x)
+        point = self.low is not None and self.low == self.high
+        return (M.OFF_VALIDITY_POINT if point else M.OUTSIDE_VALIDITY).format(
+            kind=kind, method=method, count=int(np.count_nonzero(outside)), size=x.size,
+            range=self.describe(), quantity=self.quantity, first=f"{first:.4g}",
+            source=self.source)
 
 
 MICROSTRIP_METHODS = ("hammerstad-jensen", "ipc-2141")
@@ -113,6 +130,24 @@ VALIDITY: dict[str, dict[str, tuple[ValidityRange, ...]]] = {
 """Validity ranges of each method, by line kind and method name."""
 
 _METHODS = {"microstrip": MICROSTRIP_METHODS, "stripline": STRIPLINE_METHODS}
+
+LOG_FORMS: dict[tuple[str, str], tuple[float, str]] = {
+    ("microstrip", "ipc-2141"): (5.98, "ln(5.98·h/(0.8·w + t))"),
+    ("stripline", "ipc-2141"): (1.9, "ln(1.9·b/(0.8·w + t))"),
+}
+"""The closed forms Z0 = A·ln(a·h/(0.8·w + t)), by (kind, method): the factor a and the
+logarithm as text. Their Z0 falls to 0 as 0.8·w + t rises to a·h and has no value from
+there on (the model returns NaN)."""
+
+
+def widest_width(kind: str, method: str, h: float, t: float) -> float | None:
+    """The trace width at which the method's formula gives Z0 = 0 (no impedance at or above
+    it), (a·h - t)/0.8 for the forms in :data:`LOG_FORMS`; None for a method without such
+    a bound. Not above 0 when the thickness alone reaches a·h. [m]"""
+    form = LOG_FORMS.get((kind, method))
+    if form is None:
+        return None
+    return (form[0] * h - t) / 0.8
 
 
 # --------------------------------------------------------------------------- input checks
@@ -169,17 +204,10 @@ def _quantities(kind: str, w, h, er, t) -> dict[str, np.ndarray]:
 
 def _warn_outside(kind: str, method: str, q: dict[str, np.ndarray]) -> None:
     for rng in VALIDITY[kind][method]:
-        x = q[rng.quantity]
-        outside = ~rng.contains(x)
-        if np.any(outside):
-            first = float(x[outside].flat[0]) if x.ndim else float(x)
-            warnings.warn(
-                ValidityWarning(M.OUTSIDE_VALIDITY.format(
-                    kind=kind, method=method, count=int(np.count_nonzero(outside)),
-                    size=x.size, range=rng.describe(), quantity=rng.quantity,
-                    first=f"{first:.4g}", source=rng.source)),
-                stacklevel=3,  # the caller of microstrip()/stripline()
-            )
+        text = rng.outside_text(kind, method, q[rng.quantity])
+        if text is not None:
+            # stacklevel 3: the caller of microstrip()/stripline()
+            warnings.warn(ValidityWarning(text), stacklevel=3)
 
 
 def line_methods(kind: str, w, h, er, t=0.0) -> list[str]:
