@@ -213,3 +213,38 @@ def test_a_snapshot_comparison_names_a_coupling_that_moved(tight):
     fig["value"] *= 1.5  # invented: the same run 50 % noisier
     text = json.dumps(compare(old, new).to_json())
     assert "b.scl<-edge-1" in text and "peak_noise" in text
+
+
+def _variant(tmp_path, old, new):
+    path = tmp_path / "design.toml"
+    text = textwrap.dedent(DESIGN)
+    assert old in text
+    path.write_text(text.replace(old, new), encoding="utf-8")
+    return path
+
+
+def test_peak_noise_is_the_excursion_from_the_held_level(tmp_path):
+    # common practice, no source: an aggressor too weak and slow to couple anything
+    path = _variant(tmp_path, 'swing = "3.3 V", edge_time = "0.5 ns"',
+                    'swing = "1 mV", edge_time = "1 us"')
+    c = check_design(load_design(path)).couplings[0]
+    vic = c.workings.victim
+    held_low = vic.held_level("low")
+    # the held-low line rests at its sink's level against the pull-up, well above 0
+    assert held_low == pytest.approx(vic.vdd * vic.r_sink / (vic.r_sink + vic.r_pullup),
+                                     rel=1e-12)
+    assert held_low > 0.01
+    # the level each check reads is the held level plus the (tiny) excursion
+    for k, wave in c.workings.waves.items():
+        assert wave[0] == pytest.approx(vic.held_level(k[0]), rel=1e-9)
+    low = next(k for k in c.checks if k.id == "crosstalk-low")
+    assert low.value == pytest.approx(held_low, abs=1e-3)
+    # the figure is the excursion: at most the aggressor's 1 mV swing, not the held level
+    assert 0 <= c.figures["peak_noise"].value < 1e-3
+    from pinlib.present import plotdata
+    d = plotdata.noise_vs_spacing_data(c)
+    assert d.design_peak == pytest.approx(c.figures["peak_noise"].value, abs=1e-15)
+    # the allowed excursion is measured from the held levels too
+    vil = min(x for x in vic.vil.values() if x is not None)
+    vih = max(x for x in vic.vih.values() if x is not None)
+    assert d.allowed == pytest.approx(min(vil - held_low, vic.vdd - vih), rel=1e-12)

@@ -243,11 +243,8 @@ def _figures(res: CouplingResult, w: CouplingWorkings) -> None:
 
 def _peak(noise: dict, vic: Victim) -> float:
     """The largest excursion from the held level at any receiver. [V]"""
-    out = 0.0
-    for (held, _), n in noise.items():
-        rest = 0.0 if held == "low" else vic.vdd
-        out = max(out, abs(n.level - rest))
-    return out
+    return max((abs(n.level - vic.held_level(held)) for (held, _), n in noise.items()),
+               default=0.0)
 
 
 def _notes(w: CouplingWorkings) -> list[str]:

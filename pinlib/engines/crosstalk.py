@@ -66,6 +66,19 @@ class Victim:
     source_levels: str = "the receiver's part data"
     source_t_sp: str = ""
     source_vih: str = ""       # VIH's source where it differs from ``source_levels``
+    #: The rail the held-low line is solved at, where its worst corner differs from the
+    #: held-high line's ``vdd`` (None: ``vdd``). [V]
+    vdd_low: float | None = None
+    corner_low: str = ""       # the rail corner each held state is taken at (check text)
+    corner_high: str = ""
+
+    def held_level(self, held: str) -> float:
+        """The level the line rests at, held ``'low'`` (the sink against the pull-up) or
+        ``'high'`` (the rail), before any noise. [V]"""
+        if held == "high":
+            return self.vdd
+        vdd = self.vdd if self.vdd_low is None else self.vdd_low
+        return vdd * self.r_sink / (self.r_sink + self.r_pullup)
 
 
 @value_class(frozen=True)
@@ -104,8 +117,9 @@ def _loads(vic: Victim, agg: Aggressor, t, ramp, held: str):
     va = np.clip(t / ramp, 0.0, 1.0) * agg.swing
     g = {e: 0.0 for e in _ENDS}
     i = {e: 0.0 for e in _ENDS}  # Norton current of the victim's terminations
+    vdd = vic.vdd if held == "high" or vic.vdd_low is None else vic.vdd_low
     g[vic.pullup_end] += 1.0 / vic.r_pullup
-    i[vic.pullup_end] += vic.vdd / vic.r_pullup
+    i[vic.pullup_end] += vdd / vic.r_pullup
     if held == "low":
         g[vic.sink_end] += 1.0 / vic.r_sink
     r = {e: (1.0 / g[e] if g[e] > 0 else np.inf) for e in _ENDS}
