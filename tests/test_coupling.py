@@ -248,3 +248,38 @@ def test_peak_noise_is_the_excursion_from_the_held_level(tmp_path):
     vil = min(x for x in vic.vil.values() if x is not None)
     vih = max(x for x in vic.vih.values() if x is not None)
     assert d.allowed == pytest.approx(min(vil - held_low, vic.vdd - vih), rel=1e-12)
+
+
+DEMO = "workbooks/designs/demo-board.toml"
+
+
+def test_held_high_threshold_and_level_share_the_rail_corner():
+    from pathlib import Path
+    c = check_design(load_design(Path(__file__).parents[1] / DEMO)).couplings[0]
+    vic = c.workings.victim
+    # published: UM10204 rev. 6, table 9, VIH 0.7 VDD (the controller's class); the demo's
+    # 3.3 V rail at -5 % (its supply_tolerance)
+    low = 3.3 * (1 - 0.05)
+    assert vic.vdd == pytest.approx(low, rel=1e-12)
+    for k in c.checks:
+        if k.id == "crosstalk-high":
+            assert k.limit == pytest.approx(0.7 * low, rel=1e-12)
+            assert "low corner" in k.message
+        if k.id == "crosstalk-low":  # VIL 0.3 VDD: the low rail leaves the least room
+            assert k.limit == pytest.approx(0.3 * low, rel=1e-12)
+    assert vic.vdd_low == pytest.approx(low, rel=1e-12)
+
+
+def test_the_worse_corner_follows_the_thresholds():
+    from types import SimpleNamespace
+
+    from pinlib.engines.coupling import _worst_corners
+    vdd = np.array([3.0, 3.6])  # common practice, no source: a rail at ±~9 %
+    # fixed thresholds (a part's absolute levels): the held-low level rises with the
+    # rail, so the high corner leaves less room below VIL; held high the low corner
+    fixed = [SimpleNamespace(v_il=np.array([0.8, 0.8]), v_ih=np.array([2.0, 2.0]))]
+    lo, hi, texts = _worst_corners(vdd, fixed, 0.02)
+    assert (lo, hi) == (1, 0) and "high corner" in texts[lo]
+    # thresholds following the rail (0.3 and 0.7 VDD): the low corner for both
+    scaled = [SimpleNamespace(v_il=0.3 * vdd, v_ih=0.7 * vdd)]
+    assert _worst_corners(vdd, scaled, 0.02)[:2] == (0, 0)

@@ -3,10 +3,12 @@ victim's noise at its receivers, the checks of :mod:`pinlib.engines.crosstalk`, 
 minimum spacing and the maximum parallel length.
 
 The victim is taken from its bus's result (the open-drain engine's workings): the
-segment's rail at its low corner, the pull-up the design places (the one ``auto`` chose)
-in parallel with the parts' own, at the top of its tolerance, the weakest sink of the
-line's drivers, the lowest VIL and the highest VIH of its receivers over the rail's
-corners, and at each end of the run the smallest pin capacitance on the line (the rest
+pull-up the design places (the one ``auto`` chose) in parallel with the parts' own, at
+the top of its tolerance, the weakest sink of the line's drivers, and for each held state
+one rail corner with the receivers' thresholds at that same corner (the lowest VIL, the
+highest VIH): the corner leaving the least room between the held level and the threshold
+(:func:`_worst_corners`; the noise's excursion does not depend on the rail), and at each
+end of the run the smallest pin capacitance on the line (the rest
 of the bus's capacitance lies somewhere along it, where it may not help: leaving it out
 keeps the noise an upper bound).
 Its pull-up and sink sit at the far end (the aggressor's receiver end), so the end
@@ -111,23 +113,47 @@ def victim_of(coupling: Coupling, bus: BusResult, pair, design: Design) -> Victi
     seg = next(s for s in seg_ins if s.segment.id == coupling.segment)
     ln = seg.lines[coupling.victim_signal]
     r_sink = max((float(np.max(d.r_sink)) for d in ln.drivers), default=math.inf)
-    vil = min(ln.receivers, key=lambda r: float(np.min(r.v_il)))
-    vih = max(ln.receivers, key=lambda r: float(np.max(r.v_ih)))
+    r_pullup = seg.r_eff(coupling.victim_signal) * (1.0 + seg.tol)
+    lo, hi, texts = _worst_corners(seg.vdd, ln.receivers, r_sink / (r_sink + r_pullup))
+    vil = min(ln.receivers, key=lambda r: float(r.v_il[lo]))
+    vih = max(ln.receivers, key=lambda r: float(r.v_ih[hi]))
     # the least capacitance a run's end may see: one pin, the smallest on the line
     c_end = min((float(t.pin.c_in.value) if t.pin.c_in is not None else lim.c_pin)
                 for t in ln.taps)
     t_sp, source_t_sp = lim.spike_filter()
     ends = ("near", "far")
-    return Victim(vdd=float(np.min(seg.vdd)),
-                  r_pullup=seg.r_eff(coupling.victim_signal) * (1.0 + seg.tol),
-                  r_sink=r_sink, c={e: c_end for e in ends},
-                  vil={e: float(np.min(vil.v_il)) for e in ends},
-                  vih={e: float(np.max(vih.v_ih)) for e in ends},
+    return Victim(vdd=float(seg.vdd[hi]), vdd_low=float(seg.vdd[lo]),
+                  corner_low=texts[lo], corner_high=texts[hi],
+                  r_pullup=r_pullup, r_sink=r_sink, c={e: c_end for e in ends},
+                  vil={e: float(vil.v_il[lo]) for e in ends},
+                  vih={e: float(vih.v_ih[hi]) for e in ends},
                   signal=coupling.victim_signal, t_sp=t_sp, pullup_end="far",
                   sink_end="far",
                   source_levels=f"{vil.tap.label} {_level_source(vil, 'v_il', lim)}",
                   source_vih=f"{vih.tap.label} {_level_source(vih, 'v_ih', lim)}",
                   source_t_sp=source_t_sp)
+
+
+_COUNT = {2: "two"}
+
+
+def _worst_corners(vdd, receivers, k_low: float) -> tuple[int, int, list[str]]:
+    """The rail corner (index into ``vdd``) each held state is checked at, and each
+    corner's text.  The pair is linear and the rail enters only as the line's static
+    level, so the noise's excursion is the same at every corner: the worse corner is the
+    one leaving the least room between the held level and the threshold at that same
+    corner, held low ``VIL - k_low VDD`` (``k_low`` the sink's divider against the
+    pull-up), held high ``VDD - VIH``, the lowest threshold of the line's receivers at
+    each corner."""
+    n = len(vdd)
+    vil = [min(float(r.v_il[i]) for r in receivers) for i in range(n)]
+    vih = [max(float(r.v_ih[i]) for r in receivers) for i in range(n)]
+    lo = min(range(n), key=lambda i: vil[i] - k_low * float(vdd[i]))
+    hi = min(range(n), key=lambda i: float(vdd[i]) - vih[i])
+    names = ["low", "high"] if n == 2 else [str(i) for i in range(n)]
+    texts = [f"both at the rail's {names[i]} corner {format_si(float(vdd[i]), 'V')}, the "
+             f"worse of its {_COUNT.get(n, n)} for this check" for i in range(n)]
+    return lo, hi, texts
 
 
 def _level_source(rx, name: str, lim) -> str:

@@ -257,14 +257,16 @@ def coupling_checks(noise: dict, vic: Victim, *, subject: str, warn_margin=0.10)
             lim = vic.vil[end]
             chk = check_max("crosstalk-low", n.level, lim, "V", vic.source_levels,
                             f"{where}: noise lifts it to {format_si(n.level, 'V')} against "
-                            f"VIL {format_si(lim, 'V')}", subject=subject,
+                            f"VIL {format_si(lim, 'V')}{_at(vic.corner_low)}",
+                            subject=subject,
                             warn_margin=warn_margin, details={"end": end, "held": held})
         else:
             lim = vic.vih[end]
             chk = check_min("crosstalk-high", n.level, lim, "V",
                             vic.source_vih or vic.source_levels,
                             f"{where}: noise pulls it to {format_si(n.level, 'V')} against "
-                            f"VIH {format_si(lim, 'V')}", subject=subject,
+                            f"VIH {format_si(lim, 'V')}{_at(vic.corner_high)}",
+                            subject=subject,
                             warn_margin=warn_margin, details={"end": end, "held": held})
         if chk.status == "fail" and not passes_filter:
             chk.status = "warn"
@@ -277,6 +279,11 @@ def coupling_checks(noise: dict, vic: Victim, *, subject: str, warn_margin=0.10)
         if n.beyond > 0:
             checks.append(_glitch(n, vic, where, subject, end, held))
     return checks
+
+
+def _at(corner: str) -> str:
+    """The rail corner a check's level and threshold are both taken at, as text."""
+    return f" ({corner})" if corner else ""
 
 
 _SDA_NOTE = " (SDA: a data error only where it falls while SCL is high; a warning)"
