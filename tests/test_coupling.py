@@ -283,3 +283,21 @@ def test_the_worse_corner_follows_the_thresholds():
     # thresholds following the rail (0.3 and 0.7 VDD): the low corner for both
     scaled = [SimpleNamespace(v_il=0.3 * vdd, v_ih=0.7 * vdd)]
     assert _worst_corners(vdd, scaled, 0.02)[:2] == (0, 0)
+
+
+def test_a_parallel_run_longer_than_a_line_is_refused(tmp_path):
+    from pinlib.core.errors import PinlibError
+    # physical impossibility: the victim's trace is 30 cm, the run beside it 31 cm
+    path = _variant(tmp_path, 'parallel_length = "25 cm"', 'parallel_length = "31 cm"')
+    with pytest.raises(PinlibError) as e:
+        load_design(path)
+    text = str(e.value)
+    assert "parallel_length" in text and "design.toml:" in text
+    assert "300 mm" in text and "310 mm" in text and "b.scl" in text
+
+
+def test_a_line_of_unknown_length_sets_no_bound(tmp_path):
+    # the victim's segment gives no trace: its length is unknown, any run is taken
+    path = _variant(tmp_path, 'trace = { length = "30 cm", geometry = "g" }\n', "")
+    c = load_design(path).couplings[0]
+    assert c.length == pytest.approx(0.25, rel=1e-12)
