@@ -301,3 +301,106 @@ def test_a_line_of_unknown_length_sets_no_bound(tmp_path):
     path = _variant(tmp_path, 'trace = { length = "30 cm", geometry = "g" }\n', "")
     c = load_design(path).couplings[0]
     assert c.length == pytest.approx(0.25, rel=1e-12)
+
+
+def test_a_victim_behind_a_translator_is_held_low_across_it(tmp_path):
+    from pathlib import Path
+    text = (Path(__file__).parents[1] / DEMO).read_text(encoding="utf-8")
+    old = 'segment = "main-3v3"'
+    assert old in text and 'parallel_length = "6 cm"' in text
+    text = text.replace(old, 'segment = "sensor-1v8"').replace(
+        'parallel_length = "6 cm"', 'parallel_length = "3 cm"')  # the 1.8 V trace is 4 cm
+    path = tmp_path / "demo.toml"
+    path.write_text(text, encoding="utf-8")
+    result = check_design(load_design(path))
+    c = result.couplings[0]
+    vic = c.workings.victim
+    # no device on the 1.8 V side drives SCL: U1 does, on the 3.3 V side, through Q1
+    sensors = next(b for b in result.buses if b.id == "sensors")
+    _, segs = sensors.workings
+    main = segs[0]
+    u1 = max(float(np.max(d.r_sink)) for d in main.lines["scl"].drivers)
+    rp = main.r_eff("scl") * (1 - main.tol)
+    r_on = 10.0  # the level-translator-mosfet class's r_on (its part file)
+    assert vic.r_sink == pytest.approx(u1 * rp / (u1 + rp) + r_on, rel=1e-12)
+    assert vic.v_sink == pytest.approx(float(main.vdd[1]) * u1 / (u1 + rp), rel=1e-12)
+    assert "U1 via Q1" in " ".join(c.notes)
+    for k, wave in c.workings.waves.items():
+        assert wave[0] == pytest.approx(vic.held_level(k[0]), rel=1e-9)
+    assert all(np.isfinite(k.value) for k in c.checks)
+
+
+CHAIN = """\
+format = "pinlib.design/1"
+title = "two translators in a row (invented)"
+
+[board.geometry.g]
+kind = "microstrip"
+width = "0.2 mm"
+height = "0.18 mm"
+thickness = "0 mm"
+er = 4.2
+
+[[bus]]
+id = "b"
+protocol = "i2c"
+
+[[bus.segment]]
+id = "a"
+supply = "3.3 V"
+trace = { length = "5 cm", geometry = "g" }
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "Q1", part = "level-translator-mosfet", side = "b" },
+]
+
+[[bus.segment]]
+id = "m"
+supply = "2.5 V"
+trace = { length = "5 cm", geometry = "g" }
+devices = [
+  { ref = "Q1", part = "level-translator-mosfet", side = "a" },
+  { ref = "Q2", part = "level-translator-mosfet", side = "b" },
+]
+
+[[bus.segment]]
+id = "c"
+supply = "1.8 V"
+trace = { length = "5 cm", geometry = "g" }
+devices = [
+  { ref = "Q2", part = "level-translator-mosfet", side = "a" },
+  { ref = "U9", part = "temp-humidity-sensor" },
+]
+
+[[coupling]]
+victim = "b.scl"
+segment = "c"
+aggressor = { swing = "3.3 V", edge_time = "1 ns", source_resistance = "20 Ω" }
+spacing = "0.3 mm"
+parallel_length = "3 cm"
+geometry = "g"
+"""
+
+
+def test_a_driver_two_translators_away_holds_the_victim(tmp_path):
+    path = tmp_path / "chain.toml"
+    path.write_text(CHAIN, encoding="utf-8")
+    result = check_design(load_design(path))
+    c = result.couplings[0]
+    vic = c.workings.victim
+    _, (a, m, _c) = result.buses[0].workings
+    rs = max(float(np.max(d.r_sink)) for d in a.lines["scl"].drivers)
+    r_on = 10.0  # the level-translator-mosfet class's r_on (its part file)
+
+    def par(*xs):  # sources (v, r) in parallel
+        g = sum(1 / r for _, r in xs)
+        return sum(v / r for v, r in xs) / g, 1 / g
+
+    # derived by hand: U1's sink and a's pull-up, through Q1, beside m's pull-up, through Q2
+    va, ra = par((0.0, rs), (float(a.vdd[1]), a.r_eff("scl") * (1 - a.tol)))
+    vm, rm = par((va, ra + r_on), (float(m.vdd[1]), m.r_eff("scl") * (1 - m.tol)))
+    assert vic.v_sink == pytest.approx(vm, rel=1e-12)
+    assert vic.r_sink == pytest.approx(rm + r_on, rel=1e-12)
+    assert "U1 via Q2, Q1" in " ".join(c.notes)
+    for k, wave in c.workings.waves.items():
+        assert wave[0] == pytest.approx(vic.held_level(k[0]), rel=1e-9)

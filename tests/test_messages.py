@@ -1278,6 +1278,21 @@ def _(env):
     return err.problem
 
 
+@case("COUPLING_VICTIM_UNDRIVEN", M.COUPLING_VICTIM_UNDRIVEN.format(segment="c"))
+def _(env):
+    # a design always has a controller on its bus; a segment nothing reaches is built
+    # here directly: no driver on it and no translator to another
+    from types import SimpleNamespace
+
+    from pinlib.engines.coupling import _sink
+    seg = SimpleNamespace(index=0, segment=SimpleNamespace(id="c", devices=()),
+                          lines={"scl": SimpleNamespace(drivers=[])})
+    c = SimpleNamespace(victim_signal="scl", segment="c")
+    err = _fails(lambda e: _sink(c, seg, [seg]), env)
+    assert err.field == "segment"
+    return err.problem
+
+
 @case("NO_COUPLING_WORKINGS")
 def _(env):
     from pinlib.model.result import CouplingResult

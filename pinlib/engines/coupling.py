@@ -4,7 +4,8 @@ minimum spacing and the maximum parallel length.
 
 The victim is taken from its bus's result (the open-drain engine's workings): the
 pull-up the design places (the one ``auto`` chose) in parallel with the parts' own, at
-the top of its tolerance, the weakest sink of the line's drivers, and for each held state
+the top of its tolerance, the weakest sink of the line's drivers (on a segment with
+none, behind translators, the drivers beyond them: :func:`_sink`), and for each held state
 one rail corner with the receivers' thresholds at that same corner (the lowest VIL, the
 highest VIH): the corner leaving the least room between the held level and the threshold
 (:func:`_worst_corners`; the noise's excursion does not depend on the rail), and at each
@@ -32,7 +33,8 @@ from dataclasses import field
 
 import numpy as np
 
-from pinlib.core.errors import ValidityWarning
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError, ValidityWarning
 from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
 from pinlib.engines.crosstalk import (
@@ -43,6 +45,7 @@ from pinlib.engines.crosstalk import (
     noise_of_waves,
     victim_waves,
 )
+from pinlib.engines.opendrain.rules import links
 from pinlib.model.design import Aggressor, Coupling, Design
 from pinlib.model.result import BusResult, CouplingResult
 from pinlib.physics.coupled import RAMP_FROM_10_90, coupled_microstrip, coupled_stripline
@@ -112,7 +115,7 @@ def victim_of(coupling: Coupling, bus: BusResult, pair, design: Design) -> Victi
     lim, seg_ins = bus.workings
     seg = next(s for s in seg_ins if s.segment.id == coupling.segment)
     ln = seg.lines[coupling.victim_signal]
-    r_sink = max((float(np.max(d.r_sink)) for d in ln.drivers), default=math.inf)
+    r_sink, v_sink, sink_text = _sink(coupling, seg, seg_ins)
     r_pullup = seg.r_eff(coupling.victim_signal) * (1.0 + seg.tol)
     lo, hi, texts = _worst_corners(seg.vdd, ln.receivers, r_sink / (r_sink + r_pullup))
     vil = min(ln.receivers, key=lambda r: float(r.v_il[lo]))
@@ -122,7 +125,8 @@ def victim_of(coupling: Coupling, bus: BusResult, pair, design: Design) -> Victi
                 for t in ln.taps)
     t_sp, source_t_sp = lim.spike_filter()
     ends = ("near", "far")
-    return Victim(vdd=float(seg.vdd[hi]), vdd_low=float(seg.vdd[lo]),
+    return Victim(vdd=float(seg.vdd[hi]), vdd_low=float(seg.vdd[lo]), v_sink=v_sink,
+                  source_sink=sink_text,
                   corner_low=texts[lo], corner_high=texts[hi],
                   r_pullup=r_pullup, r_sink=r_sink, c={e: c_end for e in ends},
                   vil={e: float(vil.v_il[lo]) for e in ends},
@@ -132,6 +136,73 @@ def victim_of(coupling: Coupling, bus: BusResult, pair, design: Design) -> Victi
                   source_levels=f"{vil.tap.label} {_level_source(vil, 'v_il', lim)}",
                   source_vih=f"{vih.tap.label} {_level_source(vih, 'v_ih', lim)}",
                   source_t_sp=source_t_sp)
+
+
+def _sink(coupling: Coupling, seg, seg_ins) -> tuple[float, float, str]:
+    """What holds the victim low: ``(r_sink, v_sink, text)``, the weakest sink of the
+    line's own drivers (toward 0 V).  On a segment with none (behind pass-transistor
+    translators) each driver beyond them is taken in turn as the one pulling low, and the
+    network the victim's segment sees through the transistors (their on-resistance, the
+    other segments' pull-ups at -tolerance to their rails at the maximum, as the bus's
+    Rp(min) takes them) reduced to one source: the one holding the line highest
+    (the weakest) is kept."""
+    signal = coupling.victim_signal
+    own = seg.lines[signal].drivers
+    if own:
+        return max(float(np.max(d.r_sink)) for d in own), 0.0, ""
+    net = {i: [ln for ln in lst if ln.kind == "mosfet"]
+           for i, lst in links([(s.index, s.segment) for s in seg_ins]).items()}
+    best = None
+    for d, where in _drivers_beyond(seg.index, net, seg_ins, signal):
+        v, r = _norton([_branch(ln, seg.index, d, net, seg_ins, signal, {seg.index})
+                        for ln in net[seg.index]])
+        if best is None or (v, r) > best[:2]:
+            best = (v, r, f"{d.tap.label} via {where}")
+    if best is None:
+        raise InputError(M.COUPLING_VICTIM_UNDRIVEN.format(segment=coupling.segment),
+                         field="segment", value=coupling.segment,
+                         expected="a segment where a device pulls the line low, or one "
+                                  "joined to such a segment through MOSFET translators")
+    v, r, text = best
+    return r, v, text
+
+
+def _drivers_beyond(start: int, net: dict, seg_ins, signal: str):
+    """``(driver, "Q1, Q2")`` of every segment reached from ``start`` through pass
+    transistors (a repeater's side among them: it pulls its segment low, to its offset
+    where it has one)."""
+    seen, queue = {start}, [(start, [])]
+    while queue:
+        i, path = queue.pop(0)
+        for ln in net[i]:
+            if ln.other in seen:
+                continue
+            seen.add(ln.other)
+            via = path + [ln.dev.ref]
+            for d in seg_ins[ln.other].lines[signal].drivers:
+                yield d, ", ".join(via)
+            queue.append((ln.other, via))
+
+
+def _branch(link, came_from: int, d, net: dict, seg_ins, signal: str, seen: set):
+    """``(v, r)`` of the source seen into ``link`` from segment ``came_from``: the far
+    segment's pull-up, ``d``'s sink where it sits there, and the branches beyond, in
+    series with the transistor's on-resistance."""
+    far = seg_ins[link.other]
+    seen = seen | {link.other}
+    parts = [(float(far.vdd[1]), far.r_eff(signal) * (1.0 - far.tol))]
+    if any(x is d for x in far.lines[signal].drivers):
+        parts.append((float(d.offset or 0.0), float(np.max(d.r_sink))))
+    parts += [_branch(ln, link.other, d, net, seg_ins, signal, seen)
+              for ln in net[link.other] if ln.other not in seen]
+    v, r = _norton(parts)
+    return v, r + link.r_on
+
+
+def _norton(parts) -> tuple[float, float]:
+    """Sources ``(v, r)`` in parallel as one. [V], [Ω]"""
+    g = sum(1.0 / r for _, r in parts)
+    return sum(v / r for v, r in parts) / g, 1.0 / g
 
 
 _COUNT = {2: "two"}
@@ -273,13 +344,19 @@ def _peak(noise: dict, vic: Victim) -> float:
                default=0.0)
 
 
+def _sink_text(v: Victim) -> str:
+    if not v.source_sink:
+        return ""
+    return f" ({v.source_sink}, toward {format_si(v.v_sink, 'V')})"
+
+
 def _notes(w: CouplingWorkings) -> list[str]:
     c, a, v = w.coupling, w.aggressor, w.victim
     lo, hi = w.spacing_range
     out = [f"aggressor {c.aggressor_name}: {format_si(a.swing, 'V')} swing, edge "
            f"{format_si(a.edge_time, 's')} (10-90 %), source {format_si(a.r_source, 'Ω')}",
            f"victim {c.victim} ({c.segment}): pull-up {format_si(v.r_pullup, 'Ω')} and "
-           f"sink {format_si(v.r_sink, 'Ω')} at the far end, "
+           f"sink {format_si(v.r_sink, 'Ω')}{_sink_text(v)} at the far end, "
            f"{format_si(v.c['near'], 'F')} (one pin) at each end"]
     if w.minimum_spacing is None:
         out.append(f"no spacing up to {format_si(hi, 'm')} passes at this length")

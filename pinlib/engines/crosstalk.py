@@ -69,6 +69,10 @@ class Victim:
     #: The rail the held-low line is solved at, where its worst corner differs from the
     #: held-high line's ``vdd`` (None: ``vdd``). [V]
     vdd_low: float | None = None
+    #: The level the sink pulls toward (0 for a driver on the line; the far side's
+    #: divider for a driver across a pass transistor). [V]
+    v_sink: float = 0.0
+    source_sink: str = ""      # the sink's driver where it is not on the line itself
     corner_low: str = ""       # the rail corner each held state is taken at (check text)
     corner_high: str = ""
 
@@ -78,7 +82,8 @@ class Victim:
         if held == "high":
             return self.vdd
         vdd = self.vdd if self.vdd_low is None else self.vdd_low
-        return vdd * self.r_sink / (self.r_sink + self.r_pullup)
+        return (vdd * self.r_sink + self.v_sink * self.r_pullup) / (self.r_sink
+                                                                    + self.r_pullup)
 
 
 @value_class(frozen=True)
@@ -122,6 +127,7 @@ def _loads(vic: Victim, agg: Aggressor, t, ramp, held: str):
     i[vic.pullup_end] += vdd / vic.r_pullup
     if held == "low":
         g[vic.sink_end] += 1.0 / vic.r_sink
+        i[vic.sink_end] += vic.v_sink / vic.r_sink
     r = {e: (1.0 / g[e] if g[e] > 0 else np.inf) for e in _ENDS}
     v = {e: (i[e] / g[e] if g[e] > 0 else 0.0) for e in _ENDS}
     near = EndLoads((agg.r_source, r["near"]), (0.0, vic.c.get("near", 0.0)),
@@ -268,6 +274,10 @@ def coupling_checks(noise: dict, vic: Victim, *, subject: str, warn_margin=0.10)
                             f"VIH {format_si(lim, 'V')}{_at(vic.corner_high)}",
                             subject=subject,
                             warn_margin=warn_margin, details={"end": end, "held": held})
+        rest = vic.held_level(held)
+        if rest > lim if held == "low" else rest < lim:
+            chk.message += (f"; the held level alone, {format_si(rest, 'V')}, is beyond it "
+                            "(a static fault the bus's own checks name)")
         if chk.status == "fail" and not passes_filter:
             chk.status = "warn"
             chk.message += (f" for {format_si(n.beyond, 's')}, shorter than tSP "
