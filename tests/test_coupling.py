@@ -213,3 +213,194 @@ def test_a_snapshot_comparison_names_a_coupling_that_moved(tight):
     fig["value"] *= 1.5  # invented: the same run 50 % noisier
     text = json.dumps(compare(old, new).to_json())
     assert "b.scl<-edge-1" in text and "peak_noise" in text
+
+
+def _variant(tmp_path, old, new):
+    path = tmp_path / "design.toml"
+    text = textwrap.dedent(DESIGN)
+    assert old in text
+    path.write_text(text.replace(old, new), encoding="utf-8")
+    return path
+
+
+def test_peak_noise_is_the_excursion_from_the_held_level(tmp_path):
+    # common practice, no source: an aggressor too weak and slow to couple anything
+    path = _variant(tmp_path, 'swing = "3.3 V", edge_time = "0.5 ns"',
+                    'swing = "1 mV", edge_time = "1 us"')
+    c = check_design(load_design(path)).couplings[0]
+    vic = c.workings.victim
+    held_low = vic.held_level("low")
+    # the held-low line rests at its sink's level against the pull-up, well above 0
+    assert held_low == pytest.approx(vic.vdd * vic.r_sink / (vic.r_sink + vic.r_pullup),
+                                     rel=1e-12)
+    assert held_low > 0.01
+    # the level each check reads is the held level plus the (tiny) excursion
+    for k, wave in c.workings.waves.items():
+        assert wave[0] == pytest.approx(vic.held_level(k[0]), rel=1e-9)
+    low = next(k for k in c.checks if k.id == "crosstalk-low")
+    assert low.value == pytest.approx(held_low, abs=1e-3)
+    # the figure is the excursion: at most the aggressor's 1 mV swing, not the held level
+    assert 0 <= c.figures["peak_noise"].value < 1e-3
+    from pinlib.present import plotdata
+    d = plotdata.noise_vs_spacing_data(c)
+    assert d.design_peak == pytest.approx(c.figures["peak_noise"].value, abs=1e-15)
+    # the allowed excursion is measured from the held levels too
+    vil = min(x for x in vic.vil.values() if x is not None)
+    vih = max(x for x in vic.vih.values() if x is not None)
+    assert d.allowed == pytest.approx(min(vil - held_low, vic.vdd - vih), rel=1e-12)
+
+
+DEMO = "workbooks/designs/demo-board.toml"
+
+
+def test_held_high_threshold_and_level_share_the_rail_corner():
+    from pathlib import Path
+    c = check_design(load_design(Path(__file__).parents[1] / DEMO)).couplings[0]
+    vic = c.workings.victim
+    # published: UM10204 rev. 6, table 9, VIH 0.7 VDD (the controller's class); the demo's
+    # 3.3 V rail at -5 % (its supply_tolerance)
+    low = 3.3 * (1 - 0.05)
+    assert vic.vdd == pytest.approx(low, rel=1e-12)
+    for k in c.checks:
+        if k.id == "crosstalk-high":
+            assert k.limit == pytest.approx(0.7 * low, rel=1e-12)
+            assert "low corner" in k.message
+        if k.id == "crosstalk-low":  # VIL 0.3 VDD: the low rail leaves the least room
+            assert k.limit == pytest.approx(0.3 * low, rel=1e-12)
+    assert vic.vdd_low == pytest.approx(low, rel=1e-12)
+
+
+def test_the_worse_corner_follows_the_thresholds():
+    from types import SimpleNamespace
+
+    from pinlib.engines.coupling import _worst_corners
+    vdd = np.array([3.0, 3.6])  # common practice, no source: a rail at ±~9 %
+    # fixed thresholds (a part's absolute levels): the held-low level rises with the
+    # rail, so the high corner leaves less room below VIL; held high the low corner
+    fixed = [SimpleNamespace(v_il=np.array([0.8, 0.8]), v_ih=np.array([2.0, 2.0]))]
+    lo, hi, texts = _worst_corners(vdd, fixed, 0.02)
+    assert (lo, hi) == (1, 0) and "high corner" in texts[lo]
+    # thresholds following the rail (0.3 and 0.7 VDD): the low corner for both
+    scaled = [SimpleNamespace(v_il=0.3 * vdd, v_ih=0.7 * vdd)]
+    assert _worst_corners(vdd, scaled, 0.02)[:2] == (0, 0)
+
+
+def test_a_parallel_run_longer_than_a_line_is_refused(tmp_path):
+    from pinlib.core.errors import PinlibError
+    # physical impossibility: the victim's trace is 30 cm, the run beside it 31 cm
+    path = _variant(tmp_path, 'parallel_length = "25 cm"', 'parallel_length = "31 cm"')
+    with pytest.raises(PinlibError) as e:
+        load_design(path)
+    text = str(e.value)
+    assert "parallel_length" in text and "design.toml:" in text
+    assert "300 mm" in text and "310 mm" in text and "b.scl" in text
+
+
+def test_a_line_of_unknown_length_sets_no_bound(tmp_path):
+    # the victim's segment gives no trace: its length is unknown, any run is taken
+    path = _variant(tmp_path, 'trace = { length = "30 cm", geometry = "g" }\n', "")
+    c = load_design(path).couplings[0]
+    assert c.length == pytest.approx(0.25, rel=1e-12)
+
+
+def test_a_victim_behind_a_translator_is_held_low_across_it(tmp_path):
+    from pathlib import Path
+    text = (Path(__file__).parents[1] / DEMO).read_text(encoding="utf-8")
+    old = 'segment = "main-3v3"'
+    assert old in text and 'parallel_length = "6 cm"' in text
+    text = text.replace(old, 'segment = "sensor-1v8"').replace(
+        'parallel_length = "6 cm"', 'parallel_length = "3 cm"')  # the 1.8 V trace is 4 cm
+    path = tmp_path / "demo.toml"
+    path.write_text(text, encoding="utf-8")
+    result = check_design(load_design(path))
+    c = result.couplings[0]
+    vic = c.workings.victim
+    # no device on the 1.8 V side drives SCL: U1 does, on the 3.3 V side, through Q1
+    sensors = next(b for b in result.buses if b.id == "sensors")
+    _, segs = sensors.workings
+    main = segs[0]
+    u1 = max(float(np.max(d.r_sink)) for d in main.lines["scl"].drivers)
+    rp = main.r_eff("scl") * (1 - main.tol)
+    r_on = 10.0  # the level-translator-mosfet class's r_on (its part file)
+    assert vic.r_sink == pytest.approx(u1 * rp / (u1 + rp) + r_on, rel=1e-12)
+    assert vic.v_sink == pytest.approx(float(main.vdd[1]) * u1 / (u1 + rp), rel=1e-12)
+    assert "U1 via Q1" in " ".join(c.notes)
+    for k, wave in c.workings.waves.items():
+        assert wave[0] == pytest.approx(vic.held_level(k[0]), rel=1e-9)
+    assert all(np.isfinite(k.value) for k in c.checks)
+
+
+CHAIN = """\
+format = "pinlib.design/1"
+title = "two translators in a row (invented)"
+
+[board.geometry.g]
+kind = "microstrip"
+width = "0.2 mm"
+height = "0.18 mm"
+thickness = "0 mm"
+er = 4.2
+
+[[bus]]
+id = "b"
+protocol = "i2c"
+
+[[bus.segment]]
+id = "a"
+supply = "3.3 V"
+trace = { length = "5 cm", geometry = "g" }
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "Q1", part = "level-translator-mosfet", side = "b" },
+]
+
+[[bus.segment]]
+id = "m"
+supply = "2.5 V"
+trace = { length = "5 cm", geometry = "g" }
+devices = [
+  { ref = "Q1", part = "level-translator-mosfet", side = "a" },
+  { ref = "Q2", part = "level-translator-mosfet", side = "b" },
+]
+
+[[bus.segment]]
+id = "c"
+supply = "1.8 V"
+trace = { length = "5 cm", geometry = "g" }
+devices = [
+  { ref = "Q2", part = "level-translator-mosfet", side = "a" },
+  { ref = "U9", part = "temp-humidity-sensor" },
+]
+
+[[coupling]]
+victim = "b.scl"
+segment = "c"
+aggressor = { swing = "3.3 V", edge_time = "1 ns", source_resistance = "20 Ω" }
+spacing = "0.3 mm"
+parallel_length = "3 cm"
+geometry = "g"
+"""
+
+
+def test_a_driver_two_translators_away_holds_the_victim(tmp_path):
+    path = tmp_path / "chain.toml"
+    path.write_text(CHAIN, encoding="utf-8")
+    result = check_design(load_design(path))
+    c = result.couplings[0]
+    vic = c.workings.victim
+    _, (a, m, _c) = result.buses[0].workings
+    rs = max(float(np.max(d.r_sink)) for d in a.lines["scl"].drivers)
+    r_on = 10.0  # the level-translator-mosfet class's r_on (its part file)
+
+    def par(*xs):  # sources (v, r) in parallel
+        g = sum(1 / r for _, r in xs)
+        return sum(v / r for v, r in xs) / g, 1 / g
+
+    # derived by hand: U1's sink and a's pull-up, through Q1, beside m's pull-up, through Q2
+    va, ra = par((0.0, rs), (float(a.vdd[1]), a.r_eff("scl") * (1 - a.tol)))
+    vm, rm = par((va, ra + r_on), (float(m.vdd[1]), m.r_eff("scl") * (1 - m.tol)))
+    assert vic.v_sink == pytest.approx(vm, rel=1e-12)
+    assert vic.r_sink == pytest.approx(rm + r_on, rel=1e-12)
+    assert "U1 via Q2, Q1" in " ".join(c.notes)
+    for k, wave in c.workings.waves.items():
+        assert wave[0] == pytest.approx(vic.held_level(k[0]), rel=1e-9)

@@ -118,3 +118,18 @@ def test_bad_victim_names_its_field():
     with pytest.raises(InputError) as info:
         victim_noise(_pair(1.0), LENGTH, AGG, vic)
     assert info.value.field == "r_pullup"
+
+
+def test_a_held_level_already_beyond_the_threshold_is_named():
+    # common practice, no source: a sink toward 1.2 V (a repeater's offset behind a
+    # translator) holds the line above VIL 0.99 V before any noise
+    vic = Victim(vdd=VDD, r_pullup=2.2e3, r_sink=25.0, c={"near": 5e-12, "far": 5e-12},
+                 vil={"near": VIL, "far": VIL}, vih={"near": VIH, "far": VIH},
+                 t_sp=T_SP, v_sink=1.2)
+    assert vic.held_level("low") > VIL
+    noise = victim_noise(_pair(3.0), LENGTH, AGG, vic)
+    low = _by(coupling_checks(noise, vic, subject="b.scl"), "crosstalk-low", "near", "low")[0]
+    assert low.status == "fail" and "held level alone" in low.message
+    ok = _by(coupling_checks(noise, _victim(), subject="b.scl"), "crosstalk-low", "near",
+             "low")[0]
+    assert "held level alone" not in ok.message

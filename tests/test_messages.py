@@ -1266,7 +1266,7 @@ def _coupling(victim='"b.scl"', aggressor='"s.sclk"', extra=""):
 victim = {victim}
 aggressor = {aggressor}
 spacing = "0.3 mm"
-parallel_length = "4 cm"
+parallel_length = "3 cm"
 geometry = "g"
 {extra}""")
 
@@ -1314,6 +1314,31 @@ def _(env):
     return _fails(lambda e: e.design(twice), env)
 
 
+@case("COUPLING_LONGER_THAN_LINE")
+def _(env):
+    # physical impossibility: the aggressor's SCLK is 3 cm long, the run beside it 4 cm
+    text = _coupling().replace('"3 cm"\ngeometry', '"4 cm"\ngeometry')
+    err = _fails(lambda e: e.design(text), env)
+    assert err.field == "coupling[0].parallel_length"
+    assert "30 mm" in err.expected and "50 mm" in err.expected
+    return err.problem
+
+
+@case("COUPLING_VICTIM_UNDRIVEN", M.COUPLING_VICTIM_UNDRIVEN.format(segment="c"))
+def _(env):
+    # a design always has a controller on its bus; a segment nothing reaches is built
+    # here directly: no driver on it and no translator to another
+    from types import SimpleNamespace
+
+    from pinlib.engines.coupling import _sink
+    seg = SimpleNamespace(index=0, segment=SimpleNamespace(id="c", devices=()),
+                          lines={"scl": SimpleNamespace(drivers=[])})
+    c = SimpleNamespace(victim_signal="scl", segment="c")
+    err = _fails(lambda e: _sink(c, seg, [seg]), env)
+    assert err.field == "segment"
+    return err.problem
+
+
 @case("NO_COUPLING_WORKINGS")
 def _(env):
     from pinlib.model.result import CouplingResult
@@ -1335,7 +1360,7 @@ def _(env):
     from pinlib.engines.dispatch import check_design
 
     edge = '{ swing = "3.3 V", edge_time = "0.5 ns", source_resistance = "20 Ω" }'
-    text = _coupling(aggressor=edge).replace('"4 cm"\ngeometry', '"0.2 mm"\ngeometry')
+    text = _coupling(aggressor=edge).replace('"3 cm"\ngeometry', '"0.2 mm"\ngeometry')
     err = _fails(lambda e: check_design(e.design(text)), env)
     assert err.field == "coupling[0].parallel_length"
     assert err.problem.endswith(f"(at most {worklimits.MAX_COUPLED_STEPS:,})")

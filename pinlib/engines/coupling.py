@@ -3,10 +3,13 @@ victim's noise at its receivers, the checks of :mod:`pinlib.engines.crosstalk`, 
 minimum spacing and the maximum parallel length.
 
 The victim is taken from its bus's result (the open-drain engine's workings): the
-segment's rail at its low corner, the pull-up the design places (the one ``auto`` chose)
-in parallel with the parts' own, at the top of its tolerance, the weakest sink of the
-line's drivers, the lowest VIL and the highest VIH of its receivers over the rail's
-corners, and at each end of the run the smallest pin capacitance on the line (the rest
+pull-up the design places (the one ``auto`` chose) in parallel with the parts' own, at
+the top of its tolerance, the weakest sink of the line's drivers (on a segment with
+none, behind translators, the drivers beyond them: :func:`_sink`), and for each held state
+one rail corner with the receivers' thresholds at that same corner (the lowest VIL, the
+highest VIH): the corner leaving the least room between the held level and the threshold
+(:func:`_worst_corners`; the noise's excursion does not depend on the rail), and at each
+end of the run the smallest pin capacitance on the line (the rest
 of the bus's capacitance lies somewhere along it, where it may not help: leaving it out
 keeps the noise an upper bound).
 Its pull-up and sink sit at the far end (the aggressor's receiver end), so the end
@@ -30,7 +33,8 @@ from dataclasses import field
 
 import numpy as np
 
-from pinlib.core.errors import ValidityWarning
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError, ValidityWarning
 from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
 from pinlib.engines.crosstalk import (
@@ -41,6 +45,7 @@ from pinlib.engines.crosstalk import (
     noise_of_waves,
     victim_waves,
 )
+from pinlib.engines.opendrain.rules import links
 from pinlib.model.design import Aggressor, Coupling, Design
 from pinlib.model.result import BusResult, CouplingResult
 from pinlib.physics.coupled import RAMP_FROM_10_90, coupled_microstrip, coupled_stripline
@@ -110,24 +115,116 @@ def victim_of(coupling: Coupling, bus: BusResult, pair, design: Design) -> Victi
     lim, seg_ins = bus.workings
     seg = next(s for s in seg_ins if s.segment.id == coupling.segment)
     ln = seg.lines[coupling.victim_signal]
-    r_sink = max((float(np.max(d.r_sink)) for d in ln.drivers), default=math.inf)
-    vil = min(ln.receivers, key=lambda r: float(np.min(r.v_il)))
-    vih = max(ln.receivers, key=lambda r: float(np.max(r.v_ih)))
+    r_sink, v_sink, sink_text = _sink(coupling, seg, seg_ins)
+    r_pullup = seg.r_eff(coupling.victim_signal) * (1.0 + seg.tol)
+    lo, hi, texts = _worst_corners(seg.vdd, ln.receivers, r_sink / (r_sink + r_pullup))
+    vil = min(ln.receivers, key=lambda r: float(r.v_il[lo]))
+    vih = max(ln.receivers, key=lambda r: float(r.v_ih[hi]))
     # the least capacitance a run's end may see: one pin, the smallest on the line
     c_end = min((float(t.pin.c_in.value) if t.pin.c_in is not None else lim.c_pin)
                 for t in ln.taps)
     t_sp, source_t_sp = lim.spike_filter()
     ends = ("near", "far")
-    return Victim(vdd=float(np.min(seg.vdd)),
-                  r_pullup=seg.r_eff(coupling.victim_signal) * (1.0 + seg.tol),
-                  r_sink=r_sink, c={e: c_end for e in ends},
-                  vil={e: float(np.min(vil.v_il)) for e in ends},
-                  vih={e: float(np.max(vih.v_ih)) for e in ends},
+    return Victim(vdd=float(seg.vdd[hi]), vdd_low=float(seg.vdd[lo]), v_sink=v_sink,
+                  source_sink=sink_text,
+                  corner_low=texts[lo], corner_high=texts[hi],
+                  r_pullup=r_pullup, r_sink=r_sink, c={e: c_end for e in ends},
+                  vil={e: float(vil.v_il[lo]) for e in ends},
+                  vih={e: float(vih.v_ih[hi]) for e in ends},
                   signal=coupling.victim_signal, t_sp=t_sp, pullup_end="far",
                   sink_end="far",
                   source_levels=f"{vil.tap.label} {_level_source(vil, 'v_il', lim)}",
                   source_vih=f"{vih.tap.label} {_level_source(vih, 'v_ih', lim)}",
                   source_t_sp=source_t_sp)
+
+
+def _sink(coupling: Coupling, seg, seg_ins) -> tuple[float, float, str]:
+    """What holds the victim low: ``(r_sink, v_sink, text)``, the weakest sink of the
+    line's own drivers (toward 0 V).  On a segment with none (behind pass-transistor
+    translators) each driver beyond them is taken in turn as the one pulling low, and the
+    network the victim's segment sees through the transistors (their on-resistance, the
+    other segments' pull-ups at -tolerance to their rails at the maximum, as the bus's
+    Rp(min) takes them) reduced to one source: the one holding the line highest
+    (the weakest) is kept."""
+    signal = coupling.victim_signal
+    own = seg.lines[signal].drivers
+    if own:
+        return max(float(np.max(d.r_sink)) for d in own), 0.0, ""
+    net = {i: [ln for ln in lst if ln.kind == "mosfet"]
+           for i, lst in links([(s.index, s.segment) for s in seg_ins]).items()}
+    best = None
+    for d, where in _drivers_beyond(seg.index, net, seg_ins, signal):
+        v, r = _norton([_branch(ln, seg.index, d, net, seg_ins, signal, {seg.index})
+                        for ln in net[seg.index]])
+        if best is None or (v, r) > best[:2]:
+            best = (v, r, f"{d.tap.label} via {where}")
+    if best is None:
+        raise InputError(M.COUPLING_VICTIM_UNDRIVEN.format(segment=coupling.segment),
+                         field="segment", value=coupling.segment,
+                         expected="a segment where a device pulls the line low, or one "
+                                  "joined to such a segment through MOSFET translators")
+    v, r, text = best
+    return r, v, text
+
+
+def _drivers_beyond(start: int, net: dict, seg_ins, signal: str):
+    """``(driver, "Q1, Q2")`` of every segment reached from ``start`` through pass
+    transistors (a repeater's side among them: it pulls its segment low, to its offset
+    where it has one)."""
+    seen, queue = {start}, [(start, [])]
+    while queue:
+        i, path = queue.pop(0)
+        for ln in net[i]:
+            if ln.other in seen:
+                continue
+            seen.add(ln.other)
+            via = path + [ln.dev.ref]
+            for d in seg_ins[ln.other].lines[signal].drivers:
+                yield d, ", ".join(via)
+            queue.append((ln.other, via))
+
+
+def _branch(link, came_from: int, d, net: dict, seg_ins, signal: str, seen: set):
+    """``(v, r)`` of the source seen into ``link`` from segment ``came_from``: the far
+    segment's pull-up, ``d``'s sink where it sits there, and the branches beyond, in
+    series with the transistor's on-resistance."""
+    far = seg_ins[link.other]
+    seen = seen | {link.other}
+    parts = [(float(far.vdd[1]), far.r_eff(signal) * (1.0 - far.tol))]
+    if any(x is d for x in far.lines[signal].drivers):
+        parts.append((float(d.offset or 0.0), float(np.max(d.r_sink))))
+    parts += [_branch(ln, link.other, d, net, seg_ins, signal, seen)
+              for ln in net[link.other] if ln.other not in seen]
+    v, r = _norton(parts)
+    return v, r + link.r_on
+
+
+def _norton(parts) -> tuple[float, float]:
+    """Sources ``(v, r)`` in parallel as one. [V], [Ω]"""
+    g = sum(1.0 / r for _, r in parts)
+    return sum(v / r for v, r in parts) / g, 1.0 / g
+
+
+_COUNT = {2: "two"}
+
+
+def _worst_corners(vdd, receivers, k_low: float) -> tuple[int, int, list[str]]:
+    """The rail corner (index into ``vdd``) each held state is checked at, and each
+    corner's text.  The pair is linear and the rail enters only as the line's static
+    level, so the noise's excursion is the same at every corner: the worse corner is the
+    one leaving the least room between the held level and the threshold at that same
+    corner, held low ``VIL - k_low VDD`` (``k_low`` the sink's divider against the
+    pull-up), held high ``VDD - VIH``, the lowest threshold of the line's receivers at
+    each corner."""
+    n = len(vdd)
+    vil = [min(float(r.v_il[i]) for r in receivers) for i in range(n)]
+    vih = [max(float(r.v_ih[i]) for r in receivers) for i in range(n)]
+    lo = min(range(n), key=lambda i: vil[i] - k_low * float(vdd[i]))
+    hi = min(range(n), key=lambda i: float(vdd[i]) - vih[i])
+    names = ["low", "high"] if n == 2 else [str(i) for i in range(n)]
+    texts = [f"both at the rail's {names[i]} corner {format_si(float(vdd[i]), 'V')}, the "
+             f"worse of its {_COUNT.get(n, n)} for this check" for i in range(n)]
+    return lo, hi, texts
 
 
 def _level_source(rx, name: str, lim) -> str:
@@ -243,11 +340,14 @@ def _figures(res: CouplingResult, w: CouplingWorkings) -> None:
 
 def _peak(noise: dict, vic: Victim) -> float:
     """The largest excursion from the held level at any receiver. [V]"""
-    out = 0.0
-    for (held, _), n in noise.items():
-        rest = 0.0 if held == "low" else vic.vdd
-        out = max(out, abs(n.level - rest))
-    return out
+    return max((abs(n.level - vic.held_level(held)) for (held, _), n in noise.items()),
+               default=0.0)
+
+
+def _sink_text(v: Victim) -> str:
+    if not v.source_sink:
+        return ""
+    return f" ({v.source_sink}, toward {format_si(v.v_sink, 'V')})"
 
 
 def _notes(w: CouplingWorkings) -> list[str]:
@@ -256,7 +356,7 @@ def _notes(w: CouplingWorkings) -> list[str]:
     out = [f"aggressor {c.aggressor_name}: {format_si(a.swing, 'V')} swing, edge "
            f"{format_si(a.edge_time, 's')} (10-90 %), source {format_si(a.r_source, 'Ω')}",
            f"victim {c.victim} ({c.segment}): pull-up {format_si(v.r_pullup, 'Ω')} and "
-           f"sink {format_si(v.r_sink, 'Ω')} at the far end, "
+           f"sink {format_si(v.r_sink, 'Ω')}{_sink_text(v)} at the far end, "
            f"{format_si(v.c['near'], 'F')} (one pin) at each end"]
     if w.minimum_spacing is None:
         out.append(f"no spacing up to {format_si(hi, 'm')} passes at this length")

@@ -66,6 +66,24 @@ class Victim:
     source_levels: str = "the receiver's part data"
     source_t_sp: str = ""
     source_vih: str = ""       # VIH's source where it differs from ``source_levels``
+    #: The rail the held-low line is solved at, where its worst corner differs from the
+    #: held-high line's ``vdd`` (None: ``vdd``). [V]
+    vdd_low: float | None = None
+    #: The level the sink pulls toward (0 for a driver on the line; the far side's
+    #: divider for a driver across a pass transistor). [V]
+    v_sink: float = 0.0
+    source_sink: str = ""      # the sink's driver where it is not on the line itself
+    corner_low: str = ""       # the rail corner each held state is taken at (check text)
+    corner_high: str = ""
+
+    def held_level(self, held: str) -> float:
+        """The level the line rests at, held ``'low'`` (the sink against the pull-up) or
+        ``'high'`` (the rail), before any noise. [V]"""
+        if held == "high":
+            return self.vdd
+        vdd = self.vdd if self.vdd_low is None else self.vdd_low
+        return (vdd * self.r_sink + self.v_sink * self.r_pullup) / (self.r_sink
+                                                                    + self.r_pullup)
 
 
 @value_class(frozen=True)
@@ -104,10 +122,12 @@ def _loads(vic: Victim, agg: Aggressor, t, ramp, held: str):
     va = np.clip(t / ramp, 0.0, 1.0) * agg.swing
     g = {e: 0.0 for e in _ENDS}
     i = {e: 0.0 for e in _ENDS}  # Norton current of the victim's terminations
+    vdd = vic.vdd if held == "high" or vic.vdd_low is None else vic.vdd_low
     g[vic.pullup_end] += 1.0 / vic.r_pullup
-    i[vic.pullup_end] += vic.vdd / vic.r_pullup
+    i[vic.pullup_end] += vdd / vic.r_pullup
     if held == "low":
         g[vic.sink_end] += 1.0 / vic.r_sink
+        i[vic.sink_end] += vic.v_sink / vic.r_sink
     r = {e: (1.0 / g[e] if g[e] > 0 else np.inf) for e in _ENDS}
     v = {e: (i[e] / g[e] if g[e] > 0 else 0.0) for e in _ENDS}
     near = EndLoads((agg.r_source, r["near"]), (0.0, vic.c.get("near", 0.0)),
@@ -243,15 +263,21 @@ def coupling_checks(noise: dict, vic: Victim, *, subject: str, warn_margin=0.10)
             lim = vic.vil[end]
             chk = check_max("crosstalk-low", n.level, lim, "V", vic.source_levels,
                             f"{where}: noise lifts it to {format_si(n.level, 'V')} against "
-                            f"VIL {format_si(lim, 'V')}", subject=subject,
+                            f"VIL {format_si(lim, 'V')}{_at(vic.corner_low)}",
+                            subject=subject,
                             warn_margin=warn_margin, details={"end": end, "held": held})
         else:
             lim = vic.vih[end]
             chk = check_min("crosstalk-high", n.level, lim, "V",
                             vic.source_vih or vic.source_levels,
                             f"{where}: noise pulls it to {format_si(n.level, 'V')} against "
-                            f"VIH {format_si(lim, 'V')}", subject=subject,
+                            f"VIH {format_si(lim, 'V')}{_at(vic.corner_high)}",
+                            subject=subject,
                             warn_margin=warn_margin, details={"end": end, "held": held})
+        rest = vic.held_level(held)
+        if rest > lim if held == "low" else rest < lim:
+            chk.message += (f"; the held level alone, {format_si(rest, 'V')}, is beyond it "
+                            "(a static fault the bus's own checks name)")
         if chk.status == "fail" and not passes_filter:
             chk.status = "warn"
             chk.message += (f" for {format_si(n.beyond, 's')}, shorter than tSP "
@@ -263,6 +289,11 @@ def coupling_checks(noise: dict, vic: Victim, *, subject: str, warn_margin=0.10)
         if n.beyond > 0:
             checks.append(_glitch(n, vic, where, subject, end, held))
     return checks
+
+
+def _at(corner: str) -> str:
+    """The rail corner a check's level and threshold are both taken at, as text."""
+    return f" ({corner})" if corner else ""
 
 
 _SDA_NOTE = " (SDA: a data error only where it falls while SCL is high; a warning)"

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 from pinlib.core import messages as M
 from pinlib.core import nearby, protocols
+from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
 from pinlib.model.design.objects import Bus, Geometry
 from pinlib.model.design.raw import RawCoupling, RawEdge, RawGeometry
@@ -173,9 +174,37 @@ def resolve_couplings(raws, buses, geometries: dict[str, Geometry], err) -> tupl
         geometry = _geometry(rc, geometries, loc + ("geometry",), err)
         c = Coupling(vb, vs, segment, aggressor, rc.spacing, rc.parallel_length, geometry,
                      rc.spacing_tolerance or 0.0, rc.length_tolerance or 0.0, loc)
+        _check_length(c, by_id, loc, err)
         if c.id in seen and not isinstance(aggressor, Aggressor):
             raise err(M.COUPLING_TWICE, loc + ("aggressor",), value=c.id,
                       hint="give one run the total parallel length")
         seen.add(c.id)
         out.append(c)
     return tuple(out)
+
+
+def _line_lengths(c: Coupling, buses: dict[str, Bus]) -> list[tuple[str, float]]:
+    """``(what, length)`` of each end of a coupling whose length the design gives: the
+    victim's segment (its traces and cables) and a routed aggressor (every stretch). [m]"""
+    seg = next(s for s in buses[c.victim_bus].segments if s.id == c.segment)
+    out = [(f"victim {c.victim} ({c.segment})",
+            sum(x.length for x in seg.sections) + sum(x.length for x in seg.cables))]
+    if not isinstance(c.aggressor, Aggressor):
+        bus_id, signal = c.aggressor
+        out.append((f"aggressor {c.aggressor_name}", buses[bus_id].lines[signal].length))
+    return [(w, float(n)) for w, n in out if n > 0]   # 0: the design gives no length
+
+
+def _check_length(c: Coupling, buses: dict[str, Bus], loc, err) -> None:
+    """A parallel run longer than the shorter line is physically impossible (a line of
+    unknown length sets no bound)."""
+    known = _line_lengths(c, buses)
+    if not known:
+        return
+    shortest = min(n for _, n in known)
+    if c.length > shortest * (1 + 1e-9):
+        raise err(M.COUPLING_LONGER_THAN_LINE, loc + ("parallel_length",),
+                  value=format_si(c.length, "m"),
+                  expected=f"at most {format_si(shortest, 'm')} ("
+                  + "; ".join(f"{w}: {format_si(n, 'm')}" for w, n in known) + ")",
+                  hint="the run beside the victim cannot be longer than either line")

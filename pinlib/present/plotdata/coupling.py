@@ -22,10 +22,9 @@ def _workings(result):
     return w
 
 
-def _excursion(noise: dict, vdd: float) -> float:
+def _excursion(noise: dict, vic) -> float:
     """The largest excursion from the held level at any receiver. [V]"""
-    return max(abs(n.level - (0.0 if held == "low" else vdd))
-               for (held, _), n in noise.items())
+    return max(abs(n.level - vic.held_level(held)) for (held, _), n in noise.items())
 
 
 @value_class(frozen=True)
@@ -53,12 +52,15 @@ def noise_vs_spacing_data(result) -> NoiseSweep:
     v = w.victim
     items = sorted(w.sweep.items())
     spacing = np.array([s for s, _ in items])
-    peak = np.array([_excursion(n, v.vdd) for _, n in items])
-    lows = [x for e, x in v.vil.items() if x is not None and (("low", e) in w.noise)]
-    highs = [v.vdd - x for e, x in v.vih.items() if x is not None and (("high", e) in w.noise)]
+    peak = np.array([_excursion(n, v) for _, n in items])
+    # the excursion each threshold allows from the level the line is held at
+    lows = [x - v.held_level("low") for e, x in v.vil.items()
+            if x is not None and (("low", e) in w.noise)]
+    highs = [v.held_level("high") - x for e, x in v.vih.items()
+             if x is not None and (("high", e) in w.noise)]
     allowed = min(lows + highs)
     return NoiseSweep(spacing, peak, float(allowed), w.coupling.spacing,
-                      _excursion(w.noise, v.vdd), w.minimum_spacing, w.coupling.length)
+                      _excursion(w.noise, v), w.minimum_spacing, w.coupling.length)
 
 
 @value_class(frozen=True)
