@@ -352,10 +352,35 @@ def test_the_worst_check_is_one_of_the_worst_status():
     from pinlib.studies.candidates import _summary_of
 
     r = BusResult(id="b", protocol="i2c")  # invented values (test data, no source)
-    r.add(Check("device-speed", "pass", 4e5, 4e5, "Hz", 0.0, "rating", "at the rating"))
+    r.add(Check("device-speed", "pass", 4e5, 4e5, "Hz", 0.0, "rating", "at the rating",
+                subject="U2"))
     r.add(Check("rise-time", "warn", 270e-9, 300e-9, "s", 0.05, "limit", "close"))
     dev = SimpleNamespace(is_bridge=False, ref="U2")
     bus = SimpleNamespace(protocol="i2c", segments=[])
     status, margin, where, _, margins = _summary_of([r], [(bus, dev)])
     assert status == "warn" and where["id"] == "rise-time" and margin == 0.05
     assert margins == [0.0, 0.05]  # the ranked margins are all kept, smallest first
+
+
+def test_another_devices_rating_does_not_rank_the_candidates():
+    # a check of one device's own rating (supply range, f_max, input voltage, the slowest
+    # device's speed) counts for the status always, but for the worst margin only when
+    # its subject is the candidate: another device's is the same for every candidate
+    from types import SimpleNamespace
+
+    from pinlib.model.result import BusResult, Check
+    from pinlib.studies.candidates import _summary_of
+
+    r = BusResult(id="b", protocol="spi")  # invented values (test data, no source)
+    r.add(Check("supply-range", "pass", 3.3, 3.6, "V", 0.083, "rating", "U1", subject="U1"))
+    r.add(Check("supply-range", "pass", 3.3, 3.6, "V", 0.2, "rating", "U2", subject="U2"))
+    r.add(Check("f-max", "warn", 1e6, 1.05e6, "Hz", 0.05, "rating", "U3", subject="U3"))
+    bus = SimpleNamespace(protocol="spi", segments=[])
+    status, margin, where, _, margins = _summary_of(
+        [r], [(bus, SimpleNamespace(is_bridge=False, ref="U2"))])
+    assert status == "warn"  # U3's rating still sets the status
+    assert margins == [0.2] and where["subject"] == "U2"
+    # on the demo's display position every candidate's worst was the controller's supply
+    # range (+8.3 %); now it is each one's own
+    got = cand.rank_candidates(DEMO_DESIGN, "U12")
+    assert all(c.worst_check["subject"] != "U1" for c in got.candidates)

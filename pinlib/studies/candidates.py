@@ -79,12 +79,30 @@ FIGURES = {
 #: candidate.
 FIXED_CHECKS = ("scl-frequency", "bridge-gate-drive", "bridge-offset-facing")
 
+#: Checks of one device's own rating against the bus (its supply range, its f_max, its
+#: highest input voltage, the slowest device's speed): the check names that device as
+#: its subject, and it counts for a candidate's worst margin only when that device is
+#: the candidate.  Another
+#: device's rating is the same for every candidate (at the demo's display position
+#: every candidate's worst was the controller's supply range, +8.3 %).
+OWN_CHECKS = ("supply-range", "f-max", "device-speed", "input-voltage")
+
 _RANK = {"pass": 0, "warn": 1, "fail": 2, "error": 3}
 
 
-def _ranks(check_id: str, dev) -> bool:
-    """Whether a check's margin counts for a candidate's worst margin."""
-    return dev.is_bridge or check_id not in FIXED_CHECKS
+def _ranks(check_id: str, dev, subject: str | None = None) -> bool:
+    """Whether a check's margin counts for a candidate's worst margin (``subject``: the
+    device the check names, for :data:`OWN_CHECKS`)."""
+    if dev.is_bridge:
+        return True
+    if check_id in OWN_CHECKS:
+        return _names(subject, dev.ref)
+    return check_id not in FIXED_CHECKS
+
+
+def _names(subject: str | None, ref: str) -> bool:
+    """Whether a check's subject is the device ``ref`` (``U4``, or ``Q1 side a``)."""
+    return subject is not None and (subject == ref or subject.startswith(ref + " "))
 
 
 @value_class
@@ -321,7 +339,7 @@ def _summary_of(results: list[BusResult], places) -> tuple:
     for r, (_, dev) in zip(results, places, strict=True):
         for seg_id, line, c in r.all_checks():
             # a margin that does not exist (its check says why) counts as −inf, as in a batch
-            if (c.margin is None and c.reason is None) or not _ranks(c.id, dev):
+            if (c.margin is None and c.reason is None) or not _ranks(c.id, dev, c.subject):
                 continue
             m = _margin_key(c.margin)
             margins.append(m)
@@ -408,35 +426,47 @@ def _batch_summaries(bus: Bus, dev: Device, design: Design, ref: str, parts: lis
     """Per candidate: (status code, worst margin, where, figures) on one open-drain bus,
     from one batch."""
     bb = ob.build(bus, design, ob.WorstCase(len(parts)), swap=(ref, parts), collected=collected)
-    cols, codes, where = [], [], []
+    cols, codes, where, use = [], [], [], []
     status = np.zeros(len(parts), dtype=np.int8)
     single = len(bus.segments) == 1
     for seg_id, c in bb.checks():
         status = np.maximum(status, c.status)
-        if c.margin is None or not _ranks(c.id, dev):
+        if c.margin is None:
+            continue
+        if c.id in OWN_CHECKS and not dev.is_bridge:
+            # each variant's subject: the row that set its worst (as the engine names it)
+            rows = np.zeros(len(parts), dtype=int) if c.row is None else \
+                np.broadcast_to(c.row, (len(parts),))  # one row: no index kept
+            subjects = ([None] * len(parts) if not c.names or (c.row is None and
+                                                                 len(c.names) > 1)
+                        else [c.names[int(r)] for r in rows])
+            counts = np.array([_names(x, ref) for x in subjects], dtype=bool)
+        else:
+            counts = np.full(len(parts), _ranks(c.id, dev))
+        if not counts.any():
             continue
         cols.append(np.where(np.isnan(c.margin), -np.inf, c.margin))
-        codes.append(c.status)
+        codes.append(np.broadcast_to(c.status, (len(parts),)))
+        use.append(counts)
         where.append({"bus": bus.id, "segment": None if single else seg_id,
                       "line": None, "id": c.id, "signal": c.signal})
     seg = next(s.id for s in bus.segments if any(d.ref == ref for d in s.devices))
     sb = next(s for s in bb.segments if s.id == seg)
     out = []
     if cols:
-        mg = np.stack(cols, axis=1)
+        mg, ok = np.stack(cols, axis=1), np.stack(use, axis=1)
         # the worst: a check of the worst status, then of the smallest margin (as
-        # _summary_of); where no ranked check has that status, the smallest margin
-        worst_status = np.stack(codes, axis=1) == np.max(np.stack(codes, axis=1), axis=1,
-                                                          keepdims=True)
+        # _summary_of), among the checks that count for the candidate
+        code = np.where(ok, np.stack(codes, axis=1), -1)
+        worst_status = ok & (code == np.max(code, axis=1, keepdims=True))
         idx = np.argmin(np.where(worst_status, mg, np.inf), axis=1)
-        ranked = np.sort(mg, axis=1)
     for j in range(len(parts)):
         figs = {}
         for name, unit in FIGURES["open-drain"]:
             arr = sb.figures.get(name)
             figs[name] = (None if arr is None else float(arr[j]), unit)
-        if cols:
-            m, w, ms = float(mg[j, idx[j]]), dict(where[idx[j]]), ranked[j].tolist()
+        if cols and ok[j].any():
+            m, w, ms = float(mg[j, idx[j]]), dict(where[idx[j]]), sorted(mg[j, ok[j]].tolist())
         else:
             m, w, ms = None, None, []
         out.append((int(status[j]), m, w, figs, ms))
