@@ -363,3 +363,20 @@ def test_a_pin_value_inherited_with_a_basis_only_never_takes_the_placed_parts_so
     sclk = next(ln for ln in res.lines if ln.signal == "sclk")
     sources = [c.source for c in sclk.checks if c.id == "overshoot" and c.subject == "U7"]
     assert sources and all("t-adc-class" in s and "rev B" not in s for s in sources), sources
+
+
+def test_a_timing_value_the_part_lacks_is_cited_as_lacking(tmp_path):
+    # the controller's file states no t_setup/t_hold; the CIPO checks take them as 0 and
+    # must not cite the file's provenance as if it had stated them
+    text = (DATA / "pp-ctrl.toml").read_text(encoding="utf-8")
+    text = text.replace('id = "pp-ctrl"', 'id = "t-ctrl-untimed"')
+    text = re.sub(r'^t_(setup|hold) = .*\n', "", text, flags=re.MULTILINE)
+    (tmp_path / "t-ctrl-untimed.toml").write_text(text, encoding="utf-8")
+    d, bus = write_design(tmp_path, controller="t-ctrl-untimed", extra_library=tmp_path)
+    res = evaluate_bus(bus, d)
+    source = {c.id: c.source for c in res.checks if c.subject == "U2"}
+    assert source["cipo-setup"] == "t-ctrl-untimed records no t_setup: taken as 0"
+    assert source["cipo-hold"] == "t-ctrl-untimed records no t_hold: taken as 0"
+    assert "test data, invented" not in source["cipo-setup"]
+    # a stated value still names its file's provenance
+    assert source["copi-setup"].startswith("pp-periph t_setup: ")

@@ -139,13 +139,14 @@ def _sourced_text(device: Device, name: str) -> str:
     """Where a timing value of a device's part comes from, for a check's ``source``: the
     part whose file set it (for a value inherited through ``extends``, the class it came
     from, not the part placed) and that value's own source or basis.  The placed part's
-    provenance stands in only for a value the part states itself without a source, or
-    for a value it lacks."""
+    provenance stands in only for a value the part states itself without a source.  A
+    value the part lacks is cited as lacking (the budget takes it as 0): its file's
+    provenance is not where a number that was never stated came from."""
     got = getattr(device.part.timing, name)
     part = device.part
     own_text = part.provenance.source or part.provenance.basis
     if got is None:
-        return f"{device.part_id} {name}: {own_text}"
+        return f"{device.part_id} records no {name}: taken as 0"
     origin = got.origin or device.part_id
     if origin == device.part_id:
         text = got.source or own_text
