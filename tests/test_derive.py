@@ -87,3 +87,60 @@ def part_of(tmp_path):
     folder.mkdir()
     (folder / "t.toml").write_text(PART, encoding="utf-8")
     return load_library([folder], builtin=False, env=False, strict=True).get("t-lvttl-out")
+
+
+def test_a_level_below_ground_at_the_minimum_supply_derives_no_resistance(tmp_path):
+    # VDD - 3.2 V is -0.2 V at the part's 3.0 V minimum: no sink resistance to show
+    # (a negative "r_sink -67 Ω" was listed); the plausibility warning says where
+    text = PART.replace('drive = "open-drain"\nv_ol = "0.4 V"',
+                        'drive = "open-drain"\nv_ol = "VDD - 3.2 V"')
+    (tmp_path / "t.toml").write_text(text, encoding="utf-8")
+    p = load_library([tmp_path], builtin=False, env=False, strict=True).get("t-lvttl-out")
+    assert "pins.odr.r_sink" not in derived_values(p)
+    assert derived_values(p)["pins.out.r_out_fall"].value == pytest.approx(200.0)
+
+
+TEAM_OD = """\
+format = "pinlib.part/1"
+id = "t-eeprom-rel"
+title = "Invented EEPROM with a low level written against the supply (test data)"
+category = "memory"
+extends = "eeprom-i2c"
+provenance = { basis = "datasheet", source = "invented" }
+
+[pins.sda]
+v_ol = "VDD - 2.9 V"
+"""
+
+OD_DESIGN = """\
+format = "pinlib.design/1"
+title = "low level below ground (invented)"
+
+[[bus]]
+id = "i2c0"
+protocol = "i2c"
+mode = "fast"
+clock = "400 kHz"
+supply = "1.8 V"
+pullup = "auto"
+trace = { length = "5 cm", capacitance = "1 pF/cm" }
+devices = [
+  { ref = "U1", part = "mcu-1v8", role = "controller" },
+  { ref = "U2", part = "t-eeprom-rel" },
+]
+"""
+
+
+def test_a_low_level_below_ground_at_the_bus_rail_is_refused_at_its_part_line(
+        tmp_path, monkeypatch, capsys):
+    # VDD - 2.9 V is 0.4 V at 3.3 V but -1.1 V on a 1.8 V bus: a physical impossibility,
+    # refused naming the part file's line (the engine met it as "array([0.36, -1.1])")
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    (tmp_path / "t-eeprom-rel.toml").write_text(TEAM_OD, encoding="utf-8")
+    (tmp_path / "d.toml").write_text(OD_DESIGN, encoding="utf-8")
+    assert main(["check", str(tmp_path / "d.toml"), "--library", str(tmp_path)]) != 0
+    err = capsys.readouterr().err
+    last = " ".join(err.split())  # a terminal may wrap it
+    assert "t-eeprom-rel.toml:9, field 'pins.sda.v_ol'" in last
+    assert "below ground" in last and "-1.1 V at VDD 1.8 V" in last
+    assert "array(" not in err and "Traceback" not in err

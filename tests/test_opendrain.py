@@ -754,6 +754,12 @@ def test_margin_text_relative_and_absolute():
     assert margin_text(check_max("x", 270e-9, 300e-9, "s", "s", "m")) == "+10 %"
     c = Check("y", "fail", -0.05, 0.0, "V", -0.05, "s", "m", margin_unit="V")
     assert margin_text(c) == "−50 mV"  # derived: 0 V − 50 mV
+    # derived: (300 − 301.2) / 300 = −0.4 %: a check failing by a hair never reads "-0 %"
+    fail = check_max("x", 301.2e-9, 300e-9, "s", "s", "m")
+    assert fail.status == "fail" and margin_text(fail) == "-0.4 %"
+    # derived: (300 − 299.97) / 300 = +0.01 %
+    assert margin_text(check_max("x", 299.97e-9, 300e-9, "s", "s", "m")) == "+0.01 %"
+    assert margin_text(check_max("x", 300e-9, 300e-9, "s", "s", "m")) == "+0 %"
 
 
 # --------------------------------------------------------------------------- issue 13.10

@@ -9,6 +9,7 @@ import pytest
 
 from pinlib.cli import main
 from pinlib.core.errors import LibraryError
+from pinlib.core.quantity import Threshold
 from pinlib.library.loader import load_library
 from pinlib.library.plausible import RANGES, implausible, part_warnings
 from pinlib.library.values import Sourced
@@ -181,8 +182,16 @@ devices = [
 def test_relative_levels_are_tried_at_both_supply_ends():
     # 2 V as v_il is 0.36 VDD at 5.5 V but 1.18 VDD at 1.7 V (above 0.8 VDD)
     v = Sourced(2.0, "V", "2 V")
-    assert implausible(v, "v_il", "open-drain", (1.7, 5.5)) == "0.05 VDD to 0.8 VDD"
+    assert implausible(v, "v_il", "open-drain", (1.7, 5.5)) == \
+        "0.05 VDD to 0.8 VDD; at VDD 1.7 V it is 1.18 VDD"
     assert implausible(v, "v_il", "open-drain", (3.0, 5.5)) is None
+
+
+def test_a_relative_level_out_of_range_names_the_supply_it_was_tried_at():
+    # VDD - 2.9 V is 0.4 V at 3.3 V but -1.2 V at the class's 1.7 V minimum
+    v = Sourced(Threshold(1.0, -2.9, "VDD - 2.9 V"), "V", "VDD - 2.9 V")
+    assert implausible(v, "v_ol", "open-drain", (1.7, 5.5)) == \
+        "0 V to 1 V; at VDD 1.7 V it is -1.2 V"
 
 
 def test_the_builtin_library_holds_no_implausible_value():

@@ -369,6 +369,9 @@ NOT_OPEN_DRAIN_BUS = "not an open-drain bus"
 NOT_PUSH_PULL_BUS = "the push-pull engine evaluates spi and gpio buses"
 NO_DRIVER_ON_LINE = "no device drives this line"
 # pinlib/engines/dispatch.py: hints naming where an error an engine met comes from
+LEVEL_BELOW_GROUND = "an output low level below ground at this rail"
+LEVEL_BELOW_GROUND_EXPECTED = ("a level at or above 0 V; it resolves to {level} at VDD {vdd} "
+                               "(write it in volts, or relative to a supply it suits)")
 PIN_VALUE_AT_SUPPLY = "{part} as {ref} on bus '{bus}' at its supply {vdd} ({where})"
 MET_EVALUATING_BUS = "met evaluating bus '{bus}', in the value '{field}' computed from it"
 TOO_MANY_TIME_STEPS = "the line's waveform would need {steps} time steps (at most {limit})"

@@ -87,9 +87,12 @@ def _located(err: PinlibError, bus: Bus, design: Design) -> PinlibError:
         if device.supply is not None:  # the device's own rail: the line that sets it
             own = line_of(index, device.loc + ("supply",))
             here = f"{design.path}:{own}" if design.path and own else here
-        loc = ("pins", pin_name) + ((err.field,) if err.field else ())
+        side = getattr(device, "side", None)
+        pins = device.part.sides[side].pins if side in device.part.sides else device.part.pins
+        head = ("sides", side, "pins") if side in device.part.sides else ("pins",)
+        loc = head + (pin_name,) + ((err.field,) if err.field else ())
         files = design.library.files
-        value = getattr(device.part.pins.get(pin_name), err.field or "", None)
+        value = getattr(pins.get(pin_name), err.field or "", None)
         owner = getattr(value, "origin", None) or device.part_id
         pf = files.get(owner) or files.get(device.part_id)
         hint = M.PIN_VALUE_AT_SUPPLY.format(part=device.part_id, ref=device.ref,

@@ -49,9 +49,10 @@ def _pin_derived(prefix: str, pin: Pin, vdd: float | None) -> dict[str, Sourced]
         if pin.v_ol is not None and pin.i_ol is not None and pin.i_ol.value > 0:
             r = float(pin.v_ol.at(vdd)) / pin.i_ol.value
             name = "r_out_fall" if pin.drive == "push-pull" else "r_sink"
-            out[f"{prefix}.{name}"] = Sourced(
-                r, "Ω", format_si(r, "Ω"), "derived",
-                f"v_ol / i_ol = {_term(pin.v_ol.text)} / {_term(pin.i_ol.text)} {at}")
+            if r > 0:  # a level at or below ground there gives no resistance to show
+                out[f"{prefix}.{name}"] = Sourced(
+                    r, "Ω", format_si(r, "Ω"), "derived",
+                    f"v_ol / i_ol = {_term(pin.v_ol.text)} / {_term(pin.i_ol.text)} {at}")
     return out
 
 

@@ -92,7 +92,12 @@ def implausible(value: Sourced, field: str, drive: str = "*",
                 return None
             x = x / vdd
         if not lo <= x <= hi:
-            return _range_text(lo, hi, unit)
+            relative = getattr(value.value, "relative", False)
+            if vdd is None or (unit != "VDD" and not relative):
+                return _range_text(lo, hi, unit)
+            # the value depends on the supply: say at which end it leaves the range
+            got = f"{x:.3g} VDD" if unit == "VDD" else format_si(x, unit)
+            return f"{_range_text(lo, hi, unit)}; at VDD {format_si(vdd, 'V')} it is {got}"
     return None
 
 

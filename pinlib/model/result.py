@@ -132,7 +132,10 @@ def margin_text(c: Check) -> str:
     if c.margin_unit is not None:
         text = format_si(abs(m), c.margin_unit)
         return ("−" if m < 0 else "+") + text
-    return f"{m * 100:+.0f} %"
+    pct = m * 100
+    if pct != 0 and abs(pct) < 0.5:  # never "-0 %" for a check that fails by a hair
+        return f"{pct:+.1g} %"
+    return f"{pct:+.0f} %"
 
 
 def json_number(v):

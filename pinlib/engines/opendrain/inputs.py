@@ -294,6 +294,25 @@ def _leakage(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits, up: 
     return leak
 
 
+def _refuse_below_ground(v_ol: np.ndarray, value: Sourced, tap: _Tap, v: np.ndarray,
+                         vtol: float) -> None:
+    """A low level written relative to the supply (``VDD - 2.9 V``) that resolves below
+    ground at this bus's rail is a physical impossibility: refused, naming the pin's
+    value for the dispatcher to locate in its part file."""
+    worst = float(np.min(v_ol))
+    if worst >= 0.0:
+        return
+    ends = np.array([tap.vdd * (1 - vtol), tap.vdd * (1 + vtol)]) if tap.own else v
+    vals = np.asarray(value.at(ends), dtype=float)
+    # where the value was taken: the lowest rail corner, or the own rail's end it used
+    at = float(ends[int(np.argmax(vals) if tap.own else np.argmin(vals))])
+    err = DesignError(M.LEVEL_BELOW_GROUND, field="v_ol", value=value.text,
+                      expected=M.LEVEL_BELOW_GROUND_EXPECTED.format(
+                          level=format_si(worst, "V"), vdd=format_si(at, "V")))
+    err.pin_of = (tap.dev.ref, tap.pin_name, tap.vdd)
+    raise err
+
+
 def _drivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
              up: str) -> list[_Driver]:
     """The open-drain outputs on the line, their sink points at each rail corner."""
@@ -309,6 +328,7 @@ def _drivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
             _default(seg_in, f"no sink point (v_ol, i_ol) stated: taken at the specification's "
                              f"{rule} ({lim.source_sink})", f"{t.label} {up}")
         v_ol = _corner_values(vol_s, t, v, vtol, "max")
+        _refuse_below_ground(v_ol, vol_s, t, v, vtol)
         i_ol = float(iol_s.value)
         src = t.source("i_ol") if t.pin.i_ol is not None else lim.source_sink
         offset = None
