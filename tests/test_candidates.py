@@ -336,6 +336,8 @@ def test_counts_add_up(capsys):
                 + r.set_aside["category"]) == r.library_size
         assert r.set_aside["cable"] == cables
         assert f"{r.set_aside['cable']} are cables" in r.count_text() or cables == 0
+        # the whole is the library's parts, not "placeable" ones (cables stand nowhere)
+        assert f"of the library's {r.library_size} parts" in r.count_text()
     assert r.set_aside["category"] > 0
     assert main(["candidates", str(DEMO), "U4", "--json"]) == 0
     data = json.loads(capsys.readouterr().out)

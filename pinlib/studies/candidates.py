@@ -187,7 +187,9 @@ class Ranking:
             rest.append(f"{self.set_aside['cable']} are cables, which stand at no position")
         if self.set_aside.get("category"):
             rest.append(f"{self.set_aside['category']} are of other categories")
-        return (f"{len(self.candidates)} of {self.library_size} placeable parts can serve it "
+        # "of the library's N parts": the count takes in the cables that the reasons then
+        # set aside, so it does not call them placeable
+        return (f"{len(self.candidates)} of the library's {self.library_size} parts can serve it "
                 f"({'; '.join(rest)})")
 
     def candidate(self, part_id: str) -> Candidate:
