@@ -540,6 +540,46 @@ def _(env):
     return _implausible(env).message
 
 
+def _typ_beyond(env):
+    from pinlib.library.plausible import part_warnings
+
+    text = PART.format(id="p").replace('c_in = "8 pF"',
+                                       'c_in = { value = "8 pF", typ = "9 pF" }', 1)
+    (got,) = part_warnings(env.part(text).get("p"), None)
+    return got
+
+
+@case("TYP_BEYOND_LIMIT", M.TYP_BEYOND_LIMIT.format(typ="9 pF"))
+def _(env):
+    return _typ_beyond(env)
+
+
+@case("TYP_SIDE_RULE", M.TYP_SIDE_RULE.format(rel="at most", field="c_in", side="maximum"))
+def _(env):
+    return _typ_beyond(env).message
+
+
+def _below_ground(env):
+    env.write("team/p.toml", PART.format(id="p").replace(
+        'c_in = "8 pF"', 'c_in = "8 pF"\nv_ol = "VDD - 2.9 V"\ni_ol = "3 mA"', 1))
+    body = I2C_BUS.replace("3.3 V", "1.8 V").replace("mcu-3v3", "mcu-1v8").replace(
+        '"eeprom-i2c"', '"p"')
+    d = env.design(body, library_folders=[env.tmp / "team"])
+    from pinlib.engines.dispatch import check_design
+    return _fails(lambda e: check_design(d), env)
+
+
+@case("LEVEL_BELOW_GROUND")
+def _(env):
+    return _below_ground(env)
+
+
+@case("LEVEL_BELOW_GROUND_EXPECTED",
+      M.LEVEL_BELOW_GROUND_EXPECTED.format(level="-1.1 V", vdd="1.8 V"))
+def _(env):
+    return _below_ground(env).message
+
+
 def _swapped_corners(env):
     from pinlib.library.plausible import part_warnings
 

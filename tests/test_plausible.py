@@ -199,3 +199,38 @@ def test_the_builtin_library_holds_no_implausible_value():
     found = [w.message for pid in lib.parts for w in part_warnings(lib.parts[pid], lib)]
     assert not found
     assert all(lo <= hi for lo, hi, _ in RANGES.values())
+
+
+TYP_PART = """\
+format = "pinlib.part/1"
+id = "t-typ"
+title = "Invented EEPROM with typical values beside its limits (test data)"
+category = "memory"
+extends = "eeprom-i2c"
+provenance = {{ basis = "datasheet", source = "invented rev A" }}
+
+[pins.sda]
+c_in = {{ value = "4 pF", typ = "{c_typ}" }}
+v_ol = {{ value = "0.4 V", typ = "0.2 V" }}
+v_il = {{ value = "0.3 VDD", typ = "0.5 VDD" }}
+
+[timing]
+f_max = {{ value = "400 kHz", typ = "{f_typ}" }}
+"""
+
+
+def test_a_typical_value_beyond_its_limit_is_a_problem_naming_the_line(team, capsys):
+    # c_in is a maximum and f_max a minimum (pinlib.library.schema glossary): a typical
+    # 5 pF beside a 4 pF maximum, or a typical 100 kHz beside a 400 kHz minimum, is a
+    # typing slip; a threshold's typical switching point beyond VIL is normal
+    (team / "t-typ.toml").write_text(TYP_PART.format(c_typ="5 pF", f_typ="100 kHz"),
+                                     encoding="utf-8")
+    assert main(["parts", "check", str(team)]) != 0
+    out = " ".join(capsys.readouterr().out.split())
+    assert "t-typ.toml:9, field 'pins.sda.c_in': its typical value 5 pF lies beyond" in out
+    assert "which for c_in is the maximum" in out
+    assert "field 'timing.f_max'" in out and "which for f_max is the minimum" in out
+    assert "pins.sda.v_il" not in out and "pins.sda.v_ol" not in out
+    (team / "t-typ.toml").write_text(TYP_PART.format(c_typ="3.5 pF", f_typ="1 MHz"),
+                                     encoding="utf-8")
+    assert main(["parts", "check", str(team)]) == 0

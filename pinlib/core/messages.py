@@ -133,6 +133,9 @@ VALUE_TABLE_WITHOUT_VALUE = "a value table without 'value'"
 SOURCE_NOT_TEXT = "a source must be text"
 # plausible.py (warnings: the part still loads)
 IMPLAUSIBLE_VALUE = "an implausible value for this field"
+TYP_BEYOND_LIMIT = "its typical value {typ} lies beyond the limit beside it"
+TYP_SIDE_RULE = ("a typ {rel} the value, which for {field} is the {side} (one of "
+                 "them mistyped, or the two swapped?)")
 PLAUSIBLE_RANGE = "{range} (common practice, no source)"
 FAST_CORNER_WEAKER = "the fast corner's r_out is above the slow corner's {slow}: corners swapped?"
 FAST_CORNER_RULE = "a fast corner's r_out at most the pin's own r_out (the slow corner)"

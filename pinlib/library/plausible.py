@@ -20,7 +20,8 @@ from pinlib.core.quantity import format_si
 from pinlib.library.schema import Part
 from pinlib.library.values import Sourced
 
-__all__ = ["RANGES", "LINE_AGREEMENT", "implausible", "part_warnings"]
+__all__ = ["RANGES", "LINE_AGREEMENT", "TYP_SIDE", "implausible", "part_warnings",
+           "typ_beyond"]
 
 # common practice, no source: (field, pin drive or "*") -> (low, high, unit); levels in
 # volts at the part's supply (a relative level is tried at the supply's two ends), or as
@@ -55,6 +56,41 @@ RANGES: dict[tuple[str, str], tuple[float, float, str]] = {
 #: fraction of the delay (common practice, no source: catalogue values are rounded to a
 #: few percent).
 LINE_AGREEMENT = 0.05
+
+
+#: The direction each stored limit guards (common practice, no source; the glossary of
+#: pinlib.library.schema): ``"max"`` where the value is a maximum, so its typical value
+#: lies at or below it; ``"min"`` where it is a minimum.  Thresholds (v_il, v_ih) are left
+#: out: a receiver's typical switching point lies beyond its guaranteed VIL and VIH by
+#: nature, and i_ol/i_oh are the currents a level is stated at, not limits.
+TYP_SIDE: dict[str, str] = {
+    "c_in": "max", "leakage": "max", "v_ol": "max", "v_oh": "min",
+    "t_valid": "max", "t_pd": "max", "t_setup": "max", "t_hold": "max", "f_max": "min",
+    "t_of_max": "max", "t_of_min": "min",
+}
+
+
+def typ_beyond(value: Sourced, field: str, supplies: tuple[float, ...] = ()) -> str | None:
+    """The rule a value's ``typ`` breaks when it lies on the wrong side of the value it
+    rides beside (a typical 5 pF beside a maximum of 4 pF: one of them mistyped), else
+    None.  Relative levels are compared at each end of the part's supply. [text]"""
+    side = TYP_SIDE.get(field)
+    if side is None or value.typ is None or value.derived:
+        return None
+    for vdd in supplies or (None,):
+        try:
+            lim = float(value.at(vdd))
+            typ = value.typ.resolve(vdd) if hasattr(value.typ, "resolve") and vdd is not None \
+                else getattr(value.typ, "offset", value.typ)
+            typ = float(typ)
+        except (TypeError, ValueError):
+            return None
+        bad = typ > lim * (1 + 1e-9) if side == "max" else typ < lim * (1 - 1e-9)
+        if bad:
+            return M.TYP_SIDE_RULE.format(field=field, side="maximum" if side == "max"
+                                          else "minimum",
+                                          rel="at most" if side == "max" else "at least")
+    return None
 
 
 def _range_text(lo: float, hi: float, unit: str) -> str:
@@ -141,6 +177,13 @@ def part_warnings(part: Part, lib=None, *, own_only: bool = False) -> list[Libra
     def _add(path, value, field, drive, ends=()):
         if own_only and value.origin not in (None, part.id):
             return
+        rule = typ_beyond(value, field, ends)
+        if rule:
+            typ = value.typ
+            out.append(LibraryError(M.TYP_BEYOND_LIMIT.format(
+                typ=getattr(typ, "text", "") or format_si(float(typ), value.unit)),
+                field=".".join(map(str, path)), value=value.text, expected=rule,
+                **_where(lib, part.id, value, path)))
         rng = implausible(value, field, drive, ends)
         if rng:
             out.append(LibraryError(M.IMPLAUSIBLE_VALUE, field=".".join(map(str, path)),
