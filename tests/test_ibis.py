@@ -378,6 +378,11 @@ def test_imported_part_loads_and_is_checked_in_a_design(tmp_path, capsys):
     assert sda.v_ol.at(3.3) == pytest.approx(0.09, rel=1e-5)
     assert sda.drive == "open-drain" and "[Model] io33" in sda.v_ol.source
     assert part.provenance.basis == "ibis"
+    # the file's [Voltage Range] 3.0-3.6 V is the supply its tables were taken at; the
+    # source says it stands in for the datasheet's rating
+    assert (part.supply.min.value, part.supply.max.value) == (3.0, 3.6)
+    assert "[Voltage Range] (the supply the model's tables were taken at" in \
+        part.supply.max.source
     cb = {}
     for name, part_id in (("imported", "demo-io"), ("class", "eeprom-i2c")):
         design = tmp_path / f"{name}.toml"

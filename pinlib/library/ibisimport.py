@@ -211,7 +211,11 @@ def _supply_line(ibis, model, vr) -> str:
     hi = max(v for v in (vr.typ, vr.min, vr.max) if v is not None)
     name = ibis.header.get("file name", "") or Path(ibis.path).name
     where = "[Voltage Range]" if model.voltage_range is not None else "[Pullup Reference]"
-    src = _toml_string(f"{name} rev {ibis.file_rev}, [Model] {model.name}, {where}")
+    # an IBIS file states the supply its tables were taken at, not the part's rating:
+    # the source says so, for the engineer to replace with the datasheet's range
+    src = _toml_string(f"{name} rev {ibis.file_rev}, [Model] {model.name}, {where} "
+                       "(the supply the model's tables were taken at, standing in for the "
+                       "datasheet's operating range)")
     return (f"supply = {{ min = {{ value = {_toml_string(format_si(lo, 'V'))}, basis = \"ibis\", "
             f"source = {src} }}, max = {{ value = {_toml_string(format_si(hi, 'V'))}, "
             f"basis = \"ibis\", source = {src} }}, typ = {_toml_string(format_si(vr.typ, 'V'))} }}")
