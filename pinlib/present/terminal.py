@@ -23,7 +23,7 @@ import sys
 import textwrap
 
 __all__ = ["DEFAULT_WIDTH", "MIN_WIDTH", "columns", "width", "use_colour", "status_word", "wrap",
-           "fitted", "shell_word"]
+           "fitted", "shell_word", "shown_path"]
 
 #: Columns when standard output is not a terminal and COLUMNS is not set.
 DEFAULT_WIDTH = 80
@@ -136,3 +136,13 @@ def shell_word(path) -> str:
     if all(c in _SHELL_SAFE for c in text):
         return text
     return "'" + text.replace("'", "'\"'\"'") + "'"
+
+
+def shown_path(path) -> str:
+    """``path`` as a message shows it: relative to the working folder when it lies inside
+    it, else as given."""
+    try:
+        rel = os.path.relpath(path)
+    except ValueError:  # another drive (Windows)
+        return str(path)
+    return str(path) if rel.startswith("..") else rel

@@ -1,0 +1,72 @@
+"""``pinlib parts check``: every problem of the part files (its own module, as ``parts
+import``, to keep :mod:`pinlib.cli.commands.parts` small)."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+from pinlib.core import messages as M
+from pinlib.core.errors import InputError
+from pinlib.present.terminal import shown_path as _rel
+
+
+def _under(path, folder: Path) -> bool:
+    try:
+        Path(path).resolve().relative_to(folder)
+    except ValueError:
+        return False
+    return True
+
+
+def run_check(args, load) -> int:
+    """`pinlib parts check [FOLDER]`: every problem of the part files (``load(args,
+    extra)`` gives the library); exit 1 when one is found."""
+    from pinlib.core.errors import LibraryError
+    from pinlib.library.plausible import part_warnings
+
+    if args.folder is None:
+        lib = load(args)
+        lib.resolve_all()
+        problems = list(lib.problems)
+        for pid in lib.parts:  # implausible values, each listed with the file that set it
+            problems += part_warnings(lib.parts[pid], lib, own_only=True)
+        scope = "the library"
+        n_files = len(lib.files)
+    else:
+        folder = Path(args.folder)
+        if not folder.is_dir():
+            raise InputError(M.NOT_A_FOLDER, file=str(folder), field="FOLDER")
+        lib = load(args, extra=[folder])
+        root = folder.resolve()
+        problems = [p for p in lib.problems if p.file and _under(p.file, root)]
+        problems += [w for pid in lib.parts if _under(lib.files[pid].path, root)
+                     for w in part_warnings(lib.parts[pid], lib, own_only=True)]
+        # A part of the folder that does not load because of a file it extends.
+        for pid, pf in lib.files.items():
+            if pid in lib.parts or not _under(pf.path, root):
+                continue
+            if any(p.file and Path(p.file).resolve() == pf.path.resolve() for p in problems):
+                continue
+            chain = {str(lib.files[c].path) for c in lib.chain(pid)}
+            related = [p for p in lib.problems if p.file in chain and p not in problems]
+            problems.append(LibraryError(M.PART_DOES_NOT_LOAD, file=str(pf.path),
+                                         field="extends", hint="a problem in a file it extends"))
+            problems += related
+        from pinlib.library.walk import part_paths
+
+        n_files = len(part_paths(folder)[0])  # the files the bounded walk read
+        scope = _rel(folder)
+    if args.json:
+        print(json.dumps({"checked": scope, "files": n_files,
+                          "problems": [p.to_dict() for p in problems]},
+                         indent=2, ensure_ascii=False))
+    else:
+        from pinlib.present.terminal import fitted
+
+        for p in problems:
+            print(fitted(p.message))
+        n = len(problems)
+        verdict = "no problems" if not n else f"{n} problem{'s' if n != 1 else ''}"
+        print(f"checked {n_files} file{'s' if n_files != 1 else ''} in {scope}: {verdict}")
+    return 1 if problems else 0
