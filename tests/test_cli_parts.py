@@ -5,6 +5,7 @@ from __future__ import annotations
 import json
 import subprocess
 import sys
+import textwrap
 from pathlib import Path
 
 import pytest
@@ -212,6 +213,45 @@ def test_new_then_record(lib, capsys):
     values = {v["field"]: v for v in json.loads(out)["values"]}
     assert values["timing.t_valid"]["value"] == 6e-9
     assert values["timing.f_max"]["origin"] == "flash"
+
+
+def test_new_without_a_source_writes_none_and_check_lists_it(lib, capsys):
+    _, team = lib
+    code, _, err = run(capsys, "parts", "new", "x1", "--from", "base", "--into", "team")
+    assert code == 0 and "no --source" in err and "team/x1.toml" in err
+    text = (team / "x1.toml").read_text(encoding="utf-8")
+    prov = tomllib.loads(text)["provenance"]
+    assert prov["basis"] == "datasheet" and "source" not in prov  # never an empty source
+    line = next(i for i, x in enumerate(text.splitlines(), 1) if x.startswith("provenance"))
+    assert "source =" in text.splitlines()[line - 2]  # the comment above says what to add
+    code, out, _ = run(capsys, "parts", "check", "team")
+    assert code == 1
+    assert f"team/x1.toml:{line}, field 'provenance.source'" in out
+    assert "basis 'datasheet' but no source" in out
+    assert out.splitlines()[-1] == "checked 2 files in team: 1 problem"
+    code, _, err = run(capsys, "parts", "new", "x2", "--from", "base", "--into", "team",
+                       "--source", "rev A")
+    assert code == 0 and "no --source" not in err
+    assert tomllib.loads((team / "x2.toml").read_text(encoding="utf-8"))["provenance"][
+        "source"] == "rev A"
+
+
+def test_check_lists_values_that_claim_a_document_without_naming_it(lib, capsys):
+    _, team = lib
+    (team / "eeprom.toml").write_text(EEPROM + textwrap.dedent("""\
+        v_il = { value = "0.3 VDD", basis = "measured" }
+        v_ih = { value = "0.7 VDD", basis = "estimate" }
+
+        [pins.scl]
+        c_in = { value = "9 pF", basis = "datasheet", source = "" }
+        v_il = { value = "0.3 VDD", typ = "0.35 VDD" }
+        """), encoding="utf-8")
+    code, out, _ = run(capsys, "parts", "check", "--library", "team", "--json")
+    found = [(p["file"][-11:], p["line"], p["field"]) for p in json.loads(out)["problems"]]
+    # an estimate names no document; a value stating neither basis nor source is its
+    # file's (which has no provenance: generic)
+    assert code == 1
+    assert found == [("eeprom.toml", 11, "pins.sda.v_il"), ("eeprom.toml", 15, "pins.scl.c_in")]
 
 
 def test_new_defaults_to_the_first_library_folder(lib, capsys, monkeypatch, tmp_path):

@@ -599,6 +599,37 @@ def _(env):
     return _swapped_corners(env).expected
 
 
+# ---------------------------------------------------------------- sources.py
+def _unsourced(env):
+    from pinlib.library.sources import unsourced
+
+    text = PART.format(id="p").replace(
+        "\n\n[pins.sda]", '\nprovenance = { basis = "datasheet", source = "" }\n\n[pins.sda]', 1)
+    lib = env.part(text.replace('c_in = "8 pF"', 'c_in = { value = "8 pF", basis = "measured" }',
+                                1))
+    return unsourced(lib.files["p"])
+
+
+@case("NO_SOURCE_FOR_PART", M.NO_SOURCE_FOR_PART.format(basis="datasheet"))
+def _(env):
+    return _unsourced(env)[0]
+
+
+@case("SOURCE_OF_PART")
+def _(env):
+    return _unsourced(env)[0].expected
+
+
+@case("NO_SOURCE_FOR_VALUE", M.NO_SOURCE_FOR_VALUE.format(basis="measured"))
+def _(env):
+    return _unsourced(env)[1]
+
+
+@case("SOURCE_OF_VALUE")
+def _(env):
+    return _unsourced(env)[1].expected
+
+
 # 13.21: pinlib measured (pinlib/engines/bench.py and its command)
 _BENCH_BUS = I2C_BUS.replace('supply = "3.3 V"\n', 'supply = "3.3 V"\npullup = "2.2 kΩ"\n', 1)
 

@@ -139,6 +139,12 @@ TYP_SIDE_RULE = ("a typ {rel} the value, which for {field} is the {side} (one of
 PLAUSIBLE_RANGE = "{range} (common practice, no source)"
 FAST_CORNER_WEAKER = "the fast corner's r_out is above the slow corner's {slow}: corners swapped?"
 FAST_CORNER_RULE = "a fast corner's r_out at most the pin's own r_out (the slow corner)"
+# sources.py (listed by parts check, as implausible values are)
+NO_SOURCE_FOR_PART = "the file's provenance has the basis '{basis}' but no source"
+SOURCE_OF_PART = ('the document its values come from (provenance = { basis = "datasheet", '
+                  'source = "datasheet rev C, 2024-03" })')
+NO_SOURCE_FOR_VALUE = "a value with the basis '{basis}' but no source"
+SOURCE_OF_VALUE = 'the document, revision and table or page (source = "rev C, table 7.5")'
 LINE_VALUES_DISAGREE = ("capacitance, delay and impedance disagree: impedance x capacitance "
                         "gives {implied} against the delay {delay} ({off})")
 LINE_AGREEMENT_RULE = ("impedance x capacitance within {pct} of the delay (lossless line: "
@@ -542,6 +548,7 @@ MODULES = (
     "pinlib.library.fields",
     "pinlib.library.folders",
     "pinlib.library.plausible",
+    "pinlib.library.sources",
     "pinlib.library.record",
     "pinlib.library.ibis",
     "pinlib.library.ibisderive",
@@ -549,6 +556,7 @@ MODULES = (
     "pinlib.cli.commands.partsimport",
     "pinlib.model.design",
     "pinlib.cli.commands.parts",
+    "pinlib.cli.commands.partscheck",
     "pinlib.cli.commands.swap",
     "pinlib.standards.i2c",
     "pinlib.standards.jedec",

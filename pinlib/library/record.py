@@ -31,6 +31,7 @@ from pinlib.core.tomlfile import atomic_write, file_lock, line_index, line_of, t
 from pinlib.library import loader
 from pinlib.library.fields import resolve_path
 from pinlib.library.schema import FORMAT
+from pinlib.library.sources import NEEDS_SOURCE
 
 __all__ = ["RECORD_BASES", "new_part", "record_value"]
 
@@ -101,7 +102,9 @@ def new_part(library: loader.Library, new_id: str, from_class: str,
     title : str, optional
         The new part's title; the class's title when omitted.
     basis, source : str
-        The part's provenance: how its own values were obtained and from what.
+        The part's provenance: how its own values were obtained and from what.  Without
+        a source none is written (never an empty one): a comment asks for it, and
+        ``pinlib parts check`` lists a ``datasheet`` or ``measured`` basis without one.
 
     Returns
     -------
@@ -140,11 +143,26 @@ def new_part(library: loader.Library, new_id: str, from_class: str,
         f"title = {_toml_string(title)}",
         f"category = {_toml_string(parent.category)}",
         f"extends = {_toml_string(from_class)}",
-        f"provenance = {{ basis = {_toml_string(basis)}, source = {_toml_string(source)}, "
-        f"recorded = {today.isoformat()} }}",
+        *_provenance_lines(basis, source, today),
         "",
     ])
     return write_new_part(library, new_id, target, text)
+
+
+def _provenance_lines(basis: str, source: str, today: _dt.date) -> list[str]:
+    """The new file's ``provenance`` line: without a source no empty one is written, and a
+    basis that names a document says, in a comment, what to fill in."""
+    source = source.strip() if isinstance(source, str) else ""
+    bits = [f"basis = {_toml_string(basis)}"]
+    if source:
+        bits.append(f"source = {_toml_string(source)}")
+    bits.append(f"recorded = {today.isoformat()}")
+    line = "provenance = { " + ", ".join(bits) + " }"
+    if source or basis not in NEEDS_SOURCE:
+        return [line]
+    return ["# Name the document this part's values come from: add to provenance",
+            '#   source = "datasheet rev C, 2024-03"  (pinlib parts check lists it until then)',
+            line]
 
 
 def write_new_part(library: loader.Library, new_id: str, target: Path, text: str) -> Path:

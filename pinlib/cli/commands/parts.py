@@ -18,6 +18,7 @@ from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
 from pinlib.core import nearby
 from pinlib.core.errors import InputError
+from pinlib.present.terminal import fitted
 from pinlib.present.terminal import shown_path as _rel
 
 __all__ = ["add_parser", "run"]
@@ -139,7 +140,8 @@ def add_parser(subparsers) -> None:
     p.add_argument("--into", metavar="FOLDER", help="the team library folder to write into")
     p.add_argument("--title", help="the new part's title (default: the class's)")
     p.add_argument("--source", default="",
-                   help="the part's document (e.g. 'datasheet rev C, 2024-03')")
+                   help="the part's document (e.g. 'datasheet rev C, 2024-03'); without "
+                        "it the file asks for one in a comment")
 
     p = action("record", "record one value with its source into a team part", _run_record)
     p.add_argument("id", metavar="ID", help="the team part")
@@ -479,10 +481,14 @@ def _run_new(args) -> int:
     path = new_part(lib, args.id, args.from_class, folder, title=args.title,
                     source=args.source)
     print(f"created {_rel(path)} (extends {args.from_class})")
+    if not args.source.strip():
+        print(fitted(f"note: no --source: name the datasheet in the provenance line of "
+                     f"{_rel(path)} (pinlib parts check lists it until then)", sys.stderr),
+              file=sys.stderr)
     known = [f.resolve() for f in lib.folders]
     if folder.resolve() not in known:
-        print(f"note: {_rel(folder)} is not a library folder yet: pass --library {folder} or "
-              "add it to PINLIB_LIBRARY", file=sys.stderr)
+        print(fitted(f"note: {_rel(folder)} is not a library folder yet: pass --library "
+                     f"{folder} or add it to PINLIB_LIBRARY", sys.stderr), file=sys.stderr)
     print(f"next: pinlib parts record {args.id} PIN.FIELD \"VALUE\" --source \"...\""
           + (f" --library {folder}" if folder.resolve() not in known else ""))
     return 0

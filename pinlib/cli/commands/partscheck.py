@@ -24,6 +24,7 @@ def run_check(args, load) -> int:
     extra)`` gives the library); exit 1 when one is found."""
     from pinlib.core.errors import LibraryError
     from pinlib.library.plausible import part_warnings
+    from pinlib.library.sources import unsourced
 
     if args.folder is None:
         lib = load(args)
@@ -31,6 +32,8 @@ def run_check(args, load) -> int:
         problems = list(lib.problems)
         for pid in lib.parts:  # implausible values, each listed with the file that set it
             problems += part_warnings(lib.parts[pid], lib, own_only=True)
+        for pf in lib.files.values():  # a datasheet or measured basis without its source
+            problems += unsourced(pf)
         scope = "the library"
         n_files = len(lib.files)
     else:
@@ -53,6 +56,8 @@ def run_check(args, load) -> int:
             problems.append(LibraryError(M.PART_DOES_NOT_LOAD, file=str(pf.path),
                                          field="extends", hint="a problem in a file it extends"))
             problems += related
+        problems += [p for pf in lib.files.values() if _under(pf.path, root)
+                     for p in unsourced(pf)]
         from pinlib.library.walk import part_paths
 
         n_files = len(part_paths(folder)[0])  # the files the bounded walk read
