@@ -263,6 +263,29 @@ def test_used_by_finds_direct_and_inherited_uses(tmp_path, capsys, monkeypatch):
     assert "bus sensors  cable  ribbon-cable" in capsys.readouterr().out
 
 
+def test_used_by_reads_each_designs_own_library_line(tmp_path, capsys, monkeypatch):
+    # a team part that only a design's library line brings in is found through it
+    monkeypatch.chdir(tmp_path)
+    (tmp_path / "team").mkdir()
+    (tmp_path / "team" / "eeprom-team.toml").write_text(
+        'format = "pinlib.part/1"\nid = "eeprom-team"\ntitle = "Team EEPROM"\n'
+        'category = "memory"\nextends = "eeprom-i2c"\n', encoding="utf-8")
+    _board(tmp_path, "a.toml", ('format = "pinlib.design/1"\n',
+                                'format = "pinlib.design/1"\nlibrary = ["team"]\n'))
+    text = (tmp_path / "a.toml").read_text(encoding="utf-8")
+    (tmp_path / "a.toml").write_text(text.replace('{ ref = "U4", part = "eeprom-i2c" }',
+                                                  '{ ref = "U4", part = "eeprom-team" }'),
+                                     encoding="utf-8")
+    assert main(["parts", "used-by", "eeprom-team", "a.toml"]) == 0
+    assert "a.toml  bus sensors  U4  eeprom-team" in capsys.readouterr().out
+    # an id no library holds: where team parts were looked for
+    assert main(["parts", "used-by", "eeprom-teem", "a.toml"]) == 2
+    err = " ".join(capsys.readouterr().err.split())
+    assert "no part of the library has this id" in err
+    assert "PINLIB_LIBRARY (not set) and --library (none given)" in err
+    assert "library lines of the designs searched (1)" in err
+
+
 def test_used_by_without_designs_walks_the_current_folder_within_bounds(
         capsys, monkeypatch):
     # from a file system root the search for designs is refused, not a walk of the disk

@@ -191,6 +191,18 @@ def test_show_unknown_part(lib, capsys):
     assert code == 2 and "unknown part" in err and "eeprom" in err
 
 
+def test_show_unknown_part_says_where_team_parts_come_from(lib, capsys, monkeypatch):
+    # eeprom is a team part: without its folder it is not found, and the error says where
+    # team folders come from (a design's library line is not read by parts show)
+    (lib[0].parent / "other").mkdir()
+    monkeypatch.setenv("PINLIB_LIBRARY", "other")
+    code, out, err = run(capsys, "parts", "show", "eeprom")
+    err = " ".join(err.split())
+    assert code == 2 and not out and "unknown part" in err
+    assert "PINLIB_LIBRARY (other) and --library (none given)" in err
+    assert "a design's own library line counts only where the design is read" in err
+
+
 # --- new and record ----------------------------------------------------------------------
 
 def test_new_then_record(lib, capsys):

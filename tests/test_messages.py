@@ -1693,6 +1693,22 @@ def _(env):
     return env.cli("parts", "used-by", "no-such-part", str(env.write("a.toml", HEAD + I2C_BUS)))
 
 
+@case("TEAM_FOLDERS_READ", M.TEAM_FOLDERS_READ.format(env="not set", given="none given"))
+def _(env):
+    return " ".join(env.cli("parts", "show", "no-such-part").split())
+
+
+@case("DESIGN_LIBRARY_NOT_READ")
+def _(env):
+    return " ".join(env.cli("parts", "show", "no-such-part").split())
+
+
+@case("DESIGN_LIBRARIES_READ", M.DESIGN_LIBRARIES_READ.format(n=1))
+def _(env):
+    return " ".join(env.cli("parts", "used-by", "no-such-part",
+                            str(env.write("a.toml", HEAD + I2C_BUS))).split())
+
+
 @case("USED_BY_FOLDER_REFUSED",
       lambda: M.USED_BY_FOLDER_REFUSED.format(reason=M.LIBRARY_IS_SYSTEM_FOLDER.format(
           real="/")))

@@ -270,6 +270,11 @@ NO_DESIGN_MATCHES = "no design file matches this pattern"
 USED_BY_FOLDER_REFUSED = ("without design files named, the current folder is searched, "
                           "but not this one: {reason}")
 NOT_A_LIBRARY_PART = "no part of the library has this id"
+# folders.py: where team parts were looked for (the hint of an id not found)
+TEAM_FOLDERS_READ = "team folders are read from PINLIB_LIBRARY ({env}) and --library ({given})"
+DESIGN_LIBRARY_NOT_READ = ("a design's own library line counts only where the design is read: "
+                           "give its folder with --library")
+DESIGN_LIBRARIES_READ = "and the library lines of the designs searched ({n})"
 DESIGN_NOT_LOADED = "{path}: not checked: {message}"
 SCHEMA_KIND = "no schema of this kind"
 ONE_DESIGN_ONLY = "this option takes one design at a time"
@@ -557,6 +562,7 @@ MODULES = (
     "pinlib.model.design",
     "pinlib.cli.commands.parts",
     "pinlib.cli.commands.partscheck",
+    "pinlib.cli.commands.partsusedby",
     "pinlib.cli.commands.swap",
     "pinlib.standards.i2c",
     "pinlib.standards.jedec",

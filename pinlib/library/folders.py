@@ -16,7 +16,7 @@ from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.library.loader import library_folders
 
-__all__ = ["ENV", "OPTION", "require_folders"]
+__all__ = ["ENV", "OPTION", "require_folders", "team_folders_hint"]
 
 ENV = "PINLIB_LIBRARY"
 OPTION = "--library"
@@ -41,3 +41,17 @@ def require_folders(given: Iterable[str | os.PathLike] = (), *, env: bool = True
         if not path.is_dir():
             raise InputError(M.LIBRARY_FOLDER_NOT_FOUND, field=source, value=str(path),
                              hint=M.FOLDER_NAMED_BY.format(source=source))
+
+
+def team_folders_hint(given: Iterable[str | os.PathLike] = (), *,
+                      designs: int | None = None) -> str:
+    """Where team parts were looked for, for a part id that is not found: the folders of
+    ``PINLIB_LIBRARY`` and of ``--library`` (``given``), and either the library lines of
+    the ``designs`` searched or, when no design was read, that a design's library line
+    counts only where the design is read."""
+    env = ", ".join(str(p) for p in library_folders(env=True)) or "not set"
+    named = ", ".join(str(p) for p in given) or "none given"
+    text = M.TEAM_FOLDERS_READ.format(env=env, given=named)
+    if designs is None:
+        return f"{text}; {M.DESIGN_LIBRARY_NOT_READ}"
+    return f"{text}, {M.DESIGN_LIBRARIES_READ.format(n=designs)}"

@@ -179,9 +179,12 @@ def _worker_ignores_ctrl_c() -> None:
     signal.signal(signal.SIGINT, signal.SIG_IGN)
 
 
-def used_by(part_id: str, paths, library_folders=()) -> tuple[list[dict], list[dict]]:
+def used_by(part_id: str, paths, library_folders=(), *,
+            found_in: list | None = None) -> tuple[list[dict], list[dict]]:
     """Every position of every design where ``part_id`` stands, placed as itself or as a
-    part that extends it (at any depth).
+    part that extends it (at any depth).  Each design is read with its own ``library``
+    line; ``found_in``, when given, gets the path of each design whose library holds
+    ``part_id`` (placed or not).
 
     Returns
     -------
@@ -202,6 +205,8 @@ def used_by(part_id: str, paths, library_folders=()) -> tuple[list[dict], list[d
             errors.append({"path": str(path), "error": err.message})
             continue
         lib = design.library
+        if found_in is not None and part_id in lib.files:
+            found_in.append(str(path))
         for bus, ref, placed in _placements(design):
             chain = lib.chain(placed) if placed in lib.files else [placed]
             if part_id in chain:

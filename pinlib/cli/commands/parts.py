@@ -403,6 +403,14 @@ def _run_show(args) -> int:
     from pinlib.present.terminal import width, wrap
 
     lib = _load(args)
+    if args.id not in lib.files:
+        try:
+            lib.get(args.id)
+        except InputError as err:  # unknown: say where team parts were looked for
+            from pinlib.library.folders import team_folders_hint
+
+            raise InputError(err.problem, field="ID", value=args.id, hint="; ".join(
+                h for h in (err.hint, team_folders_hint(args.library)) if h)) from None
     data = _show_data(lib, args.id)
     if args.json:
         print(json.dumps(data, indent=2, ensure_ascii=False))

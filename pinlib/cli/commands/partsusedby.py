@@ -28,27 +28,37 @@ def _toml_files_here() -> list:
     return paths
 
 
+def _not_found(lib, args, designs: int | None) -> InputError:
+    from pinlib.library.folders import team_folders_hint
+
+    near = lib.closest(args.id)
+    hints = (["closest: " + ", ".join(near)] if near else []) + [
+        team_folders_hint(args.library, designs=designs)]
+    return InputError(M.NOT_A_LIBRARY_PART, field="ID", value=args.id, hint="; ".join(hints))
+
+
 def run_used_by(args, load) -> int:
     """`pinlib parts used-by ID [DESIGN...]`: every design position that uses the part,
-    directly or through a class it extends (``load(args)`` gives the library)."""
+    directly or through a class it extends (``load(args)`` gives the library; each design
+    adds its own ``library`` line, so a part only a design's folder holds is found)."""
     from pinlib.present.designs import format_uses
+    from pinlib.present.terminal import fitted
     from pinlib.studies.many import expand_designs, is_design_file, used_by
 
     lib = load(args)
-    if args.id not in lib.files:
-        near = lib.closest(args.id)
-        raise InputError(M.NOT_A_LIBRARY_PART, field="ID", value=args.id,
-                         hint=("closest: " + ", ".join(near)) if near else None)
     if args.designs:
         paths = expand_designs(args.designs)
     else:
         paths = [p for p in _toml_files_here() if is_design_file(p)]
-    uses, errors = used_by(args.id, paths, args.library)
-    from pinlib.present.terminal import fitted
-
+    if args.id not in lib.files and not paths:
+        raise _not_found(lib, args, len(paths))
+    holders: list = []
+    uses, errors = used_by(args.id, paths, args.library, found_in=holders)
     for e in errors:
         print(fitted("pinlib: error: " + M.DESIGN_NOT_LOADED.format(
             path=e["path"], message=e["error"]), sys.stderr), file=sys.stderr)
+    if args.id not in lib.files and not holders:
+        raise _not_found(lib, args, len(paths))
     if args.json:
         out = {"part": args.id, "uses": uses, "errors": errors}
         sys.stdout.write(json.dumps(out, indent=2, ensure_ascii=False) + "\n")
