@@ -1050,6 +1050,24 @@ def _(env):
     return _fails(lambda e: rec.record_value(lib, "p", "cs.c_in", "9 pF", "rev A"), env)
 
 
+def _pin_of_a_bridge(env):
+    lib = load_library([], env=False)
+    rec.new_part(lib, "xl", "level-translator-mosfet", env.tmp / "team", source="rev A")
+    lib = load_library([env.tmp / "team"], env=False)
+    return _fails(lambda e: rec.record_value(lib, "xl", "sda.c_in", "9 pF", "rev A"), env)
+
+
+@case("PINS_ON_SIDES")
+def _(env):
+    return _pin_of_a_bridge(env)
+
+
+@case("SIDE_PIN_PATHS", M.SIDE_PIN_PATHS.format(tables="[sides.a.pins.sda] or "
+                                                       "[sides.b.pins.sda]"))
+def _(env):
+    return _pin_of_a_bridge(env).message
+
+
 # ---------------------------------------------------------------- design
 @case("NOT_A_DESIGN")
 def _(env):

@@ -364,3 +364,33 @@ def test_killed_writer_leaves_a_whole_file_with_every_completed_write(tmp_path, 
     # A temporary file of the interrupted write may remain; the loader ignores it.
     lib = load_library([team], builtin=False, env=False)
     assert not lib.problems and "many" in lib.parts
+
+
+# --- bridging parts: pins per side --------------------------------------------------------
+
+def _bridge_part(tmp_path, monkeypatch):
+    """A team translator extending the built-in pass-transistor class (pins per side)."""
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    team = tmp_path / "team"
+    path = new_part(load_library([], env=False), "xl", "level-translator-mosfet", team,
+                    source="rev A")
+    return team, path
+
+
+def test_record_top_level_pin_on_a_bridging_part_names_the_side_paths(tmp_path, monkeypatch):
+    team, path = _bridge_part(tmp_path, monkeypatch)
+    before = path.read_bytes()
+    with pytest.raises(LibraryError) as info:
+        record_value(load(team), "xl", "sda.c_in", "5 pF", "rev A, table 3")
+    err = info.value
+    assert err.field == "pins.sda" and "on its sides" in err.problem
+    assert err.expected == "sides.a.sda.c_in or sides.b.sda.c_in"
+    assert "[sides.a.pins.sda] or [sides.b.pins.sda]" in err.hint
+    with pytest.raises(LibraryError) as info:  # a pin no side has: the sides' pins listed
+        record_value(load(team), "xl", "cs.c_in", "5 pF", "rev A, table 3")
+    assert info.value.expected == ("a pin of one side: sides.a.sda, sides.a.scl, sides.b.sda, "
+                                   "sides.b.scl")
+    assert path.read_bytes() == before
+    record_value(load(team), "xl", "sides.a.sda.c_in", "5 pF", "rev A, table 3")  # as named
+    data = tomllib.loads(path.read_text(encoding="utf-8"))
+    assert data["sides"]["a"]["pins"]["sda"]["c_in"]["value"] == "5 pF"

@@ -172,6 +172,8 @@ EMPTY_TYPICAL = "an empty typical value"
 FILE_NO_LONGER_HOLDS_PART = "the file no longer holds this part"
 CANNOT_KEEP_LAYOUT = "cannot set this value while keeping the file's layout"
 NO_SUCH_PIN = "the part has no such pin"
+PINS_ON_SIDES = "a bridging part has no pins of its own: its pins are on its sides"
+SIDE_PIN_PATHS = "the file holds such a value in {tables}"
 
 # ---------------------------------------------------------------- pinlib/model/design/
 NOT_A_DESIGN = "not a design file"

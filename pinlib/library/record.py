@@ -452,11 +452,28 @@ def _check_pin_exists(library, part_id, pf, data, keys) -> None:
     node = merged
     for key in keys[: at + 1]:
         node = node.get(key, {}) if isinstance(node, dict) else {}
+    if at == 0 and not node and isinstance(merged.get("sides"), dict) and merged["sides"]:
+        _refuse_top_level_pin(merged["sides"], keys)
     if not isinstance(node, dict) or pin not in node:
         names = ", ".join(sorted(node)) if isinstance(node, dict) and node else "none"
         raise LibraryError(M.NO_SUCH_PIN, field=".".join(keys[: at + 2]),
                            value=pin, expected=f"one of its pins ({names})",
                            hint="a new pin needs its function: add its table to the file by hand")
+
+
+def _refuse_top_level_pin(sides: dict, keys: tuple[str, ...]) -> None:
+    """A bridging part keeps its pins per side: name the side paths of the value asked for
+    (``sda.c_in`` -> ``sides.a.sda.c_in`` or ``sides.b.sda.c_in``)."""
+    pin, rest = keys[1], ".".join(keys[2:])
+    pins = {name: side.get("pins") if isinstance(side.get("pins"), dict) else {}
+            for name, side in sorted(sides.items()) if isinstance(side, dict)}
+    holding = [f"sides.{name}.{pin}.{rest}" for name, held in pins.items() if pin in held]
+    expected = " or ".join(holding) if holding else "a pin of one side: " + ", ".join(
+        f"sides.{name}.{p}" for name, held in pins.items() for p in held)
+    tables = " or ".join(f"[sides.{name}.pins.{pin if holding else 'NAME'}]" for name in pins
+                         if pin in pins[name] or not holding)
+    raise LibraryError(M.PINS_ON_SIDES, field=".".join(keys[:2]), value=pin,
+                       expected=expected, hint=M.SIDE_PIN_PATHS.format(tables=tables))
 
 
 def _keep_untouched_lines(old_text: str, before: str, after: str) -> str:

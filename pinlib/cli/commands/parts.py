@@ -75,6 +75,7 @@ examples:
       --source "rev C, table 7.5"
 
 FIELD is PIN.FIELD (sda.c_in), timing.FIELD, supply.min|max, sides.a.PIN.FIELD...
+A bridging part (translator, repeater) has its pins per side: sides.a.sda.c_in.
 
 A negative VALUE goes after '--':
   pinlib parts record X -- sda.v_il "-0.3 V" --source S
