@@ -394,3 +394,32 @@ def test_record_top_level_pin_on_a_bridging_part_names_the_side_paths(tmp_path, 
     record_value(load(team), "xl", "sides.a.sda.c_in", "5 pF", "rev A, table 3")  # as named
     data = tomllib.loads(path.read_text(encoding="utf-8"))
     assert data["sides"]["a"]["pins"]["sda"]["c_in"]["value"] == "5 pF"
+
+
+@pytest.mark.parametrize("order", [(0, 1, 2), (0, 2, 1), (1, 0, 2), (1, 2, 0), (2, 0, 1),
+                                   (2, 1, 0)])
+def test_new_tables_of_a_bridging_part_read_cleanly(tmp_path, monkeypatch, order):
+    # every table header the records write or move next to a value has a blank line
+    # before it, whatever the order ([bridge] followed a new side's value before)
+    team, path = _bridge_part(tmp_path, monkeypatch)
+    values = [("sides.a.sda.c_in", "15 pF"), ("sides.b.low_offset", "50 mV"),
+              ("bridge.v_gs_th", "1.1 V")]
+    for i in order:
+        record_value(load(team), "xl", *values[i], "rev A, table 2")
+    lines = path.read_text(encoding="utf-8").splitlines()
+    headers = [i for i, x in enumerate(lines) if x.startswith("[")]
+    assert len(headers) == 3
+    assert all(lines[i - 1] == "" for i in headers), "\n".join(lines)
+
+
+def test_a_file_without_blank_lines_between_tables_keeps_its_layout(lib_dirs):
+    _, team = lib_dirs
+    # a value added at the end of [pins.sda] sits right above [pins.scl], as the file had
+    tight = "".join(x for x in CHILD.splitlines(keepends=True)[:7]) + "".join(
+        x for x in CHILD.splitlines(keepends=True)[7:] if x.strip() and x[0] != "#")
+    (team / "child.toml").write_text(tight, encoding="utf-8")
+    record_value(load(team), "child", "sda.v_il", "0.3 VDD", "rev A")
+    text = (team / "child.toml").read_text(encoding="utf-8")
+    new = 'v_il = { value = "0.3 VDD", basis = "datasheet", source = "rev A" }\n'
+    assert new + "[pins.scl]" in text
+    assert text.replace(new, "") == tight.replace("2020-01-01", TODAY)

@@ -419,7 +419,8 @@ def record_value(library: loader.Library, part_id: str, field: str, value_text: 
         before = doc.as_string()
         _set_path(doc, keys, item)
         expected = _expected_data(old_data, keys, _plain(item))
-        new_text = _keep_untouched_lines(old_text, before, doc.as_string())
+        new_text = _blank_before_tables(old_text, _keep_untouched_lines(old_text, before,
+                                                                         doc.as_string()))
         new_text, stamp = _stamp_recorded(new_text, old_data)
         if stamp is not None:
             expected["provenance"]["recorded"] = stamp
@@ -494,6 +495,35 @@ def _keep_untouched_lines(old_text: str, before: str, after: str) -> str:
     matcher = difflib.SequenceMatcher(a=b, b=a, autojunk=False)
     for tag, i1, i2, j1, j2 in matcher.get_opcodes():
         out += old_lines[i1:i2] if tag == "equal" else a[j1:j2]
+    return "".join(out)
+
+
+_HEADER = re.compile(r"^\s*\[")
+
+
+def _blank_before_tables(old_text: str, new_text: str) -> str:
+    """A blank line before each ``[table]`` header the edit put next to a value.
+
+    A new table goes in after its siblings, which keep the blank lines that end them: the
+    table that followed them (``[bridge]`` after a new ``[sides.a.pins.sda]``) would follow
+    a value line.  A header the edit added, and one that had a blank line before it and
+    lost it, get one; a file written without blank lines keeps its layout.
+    """
+    old_lines = old_text.splitlines(keepends=True)
+    lines = new_text.splitlines(keepends=True)
+    was = {}  # the line an unchanged line had in the old text
+    matcher = difflib.SequenceMatcher(a=old_lines, b=lines, autojunk=False)
+    for tag, i1, _i2, j1, j2 in matcher.get_opcodes():
+        if tag == "equal":
+            was.update((j, i1 + j - j1) for j in range(j1, j2))
+    out: list[str] = []
+    for j, line in enumerate(lines):
+        prev = out[-1] if out else ""
+        if _HEADER.match(line) and prev.strip() and not prev.lstrip().startswith("#"):
+            i = was.get(j)
+            if i is None or (i > 0 and not old_lines[i - 1].strip()):
+                out.append("\n")
+        out.append(line)
     return "".join(out)
 
 
