@@ -286,6 +286,23 @@ def test_used_by_reads_each_designs_own_library_line(tmp_path, capsys, monkeypat
     assert "library lines of the designs searched (1)" in err
 
 
+def test_used_by_rows_fit_the_terminal_and_stay_whole_when_piped(tmp_path, capsys,
+                                                                 monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    _board(tmp_path, "a.toml")
+    assert main(["parts", "used-by", "i2c-peripheral", "a.toml"]) == 0
+    whole = capsys.readouterr().out.splitlines()
+    assert max(map(len, whole)) > 80  # a class's chains run past 80 columns
+    monkeypatch.setenv("COLUMNS", "80")
+    assert main(["parts", "used-by", "i2c-peripheral", "a.toml"]) == 0
+    fitted = capsys.readouterr().out.splitlines()
+    assert max(map(len, fitted)) <= 80
+    # the same rows, a long one's rest on an indented line below it
+    heads = [x for x in fitted if not x.startswith("    ")]
+    assert all(w.startswith(h) for w, h in zip(whole, heads, strict=True))
+    assert " ".join(" ".join(fitted).split()) == " ".join(" ".join(whole).split())
+
+
 def test_used_by_without_designs_walks_the_current_folder_within_bounds(
         capsys, monkeypatch):
     # from a file system root the search for designs is refused, not a walk of the disk

@@ -108,6 +108,24 @@ def test_list_marks_a_team_override(lib, capsys):
     assert entry["overrides"].endswith("flash.toml") and not entry["builtin"]
 
 
+def test_list_names_the_overrides_when_the_kind_column_does_not_fit(lib, capsys,
+                                                                    monkeypatch):
+    _, team = lib
+    (team / "flash.toml").write_text(FLASH.replace("50 MHz", "80 MHz"), encoding="utf-8")
+    (team / "eeprom.toml").write_text(EEPROM.replace(
+        'title = "Serial EEPROM, team"', 'title = "Serial EEPROM, team' + ", long" * 12 + '"'),
+        encoding="utf-8")
+    monkeypatch.setenv("COLUMNS", "60")
+    code, out, _ = run(capsys, "parts", "list", "--library", "team")
+    lines = out.splitlines()
+    assert code == 0 and max(map(len, lines)) <= 60 and "kind" not in lines[0]
+    assert "team parts that override a built-in one: flash" in out
+    assert "not shown at this width: kind, title" in " ".join(lines[-2:])
+    monkeypatch.setenv("COLUMNS", "400")  # the kind column shows it: no line for it
+    code, out, _ = run(capsys, "parts", "list", "--library", "team")
+    assert "team, overrides built-in" in out and "override a built-in one" not in out
+
+
 @pytest.mark.parametrize(("args", "ids"), [
     (["--category", "memory"], ["eeprom", "flash"]),
     (["--function", "spi-sclk"], ["flash"]),

@@ -481,6 +481,14 @@ def _(env):
     return env.capsys.readouterr().out
 
 
+@case("OVERRIDES_LEFT_OUT", M.OVERRIDES_LEFT_OUT.format(ids="eeprom-i2c"))
+def _(env):
+    env.write("team/eeprom-i2c.toml", PART.format(id="eeprom-i2c"))  # overrides the built-in
+    env.monkeypatch.setenv("COLUMNS", "80")  # the kind column does not fit
+    assert main(["parts", "list", "--library", str(env.tmp / "team")]) == 0
+    return env.capsys.readouterr().out
+
+
 @case("FOLDER_NAMED_BY", M.FOLDER_NAMED_BY.format(source="PINLIB_LIBRARY"))
 def _(env):
     env.monkeypatch.setenv("PINLIB_LIBRARY", str(env.tmp / "gone"))

@@ -87,6 +87,7 @@ EXPECTED_FIELD_OF = "a field of the {format} format here: {fields}"
 MORE_FIELDS = " and {n} more"
 # under a table cut to the terminal's width (pinlib/core/texttable.py)
 COLUMNS_LEFT_OUT = "(not shown at this width: {columns}; a wider terminal or --json shows them)"
+OVERRIDES_LEFT_OUT = "team parts that override a built-in one: {ids}"
 PART_DOES_NOT_VALIDATE = "part '{part}' does not load: {problem}"
 # hints of PART_DOES_NOT_VALIDATE and UNKNOWN_PART
 NAMED_AT = "the part is named at {where}"

@@ -46,7 +46,8 @@ examples:
   pinlib parts list --function spi-sclk --json
 
 A team part that overrides a built-in one is marked 'team, overrides built-in';
-abstract classes (meant to be extended, not placed) are marked 'abstract'.
+abstract classes (meant to be extended, not placed) are marked 'abstract'. When the
+kind column does not fit the terminal, a line under the table names the overrides.
 """,
     "show": """\
 examples:
@@ -234,9 +235,11 @@ def _kind(lib, pid) -> str:
     return text
 
 
-def _table(rows: list[list[str]], header: list[str], keep: int = 2) -> str:
+def _table(rows: list[list[str]], header: list[str], keep: int = 2,
+           left_out: dict[str, str] | None = None) -> str:
     """The table fitted to the terminal's width (COLUMNS; piped output whole): columns that do not
-    fit are left out and named; a long cell wraps inside its column."""
+    fit are left out and named; a long cell wraps inside its column.  ``left_out``: a line
+    to print for a column when it is left out (what it would have told)."""
     import textwrap
 
     from pinlib.core.texttable import fit_table
@@ -244,6 +247,9 @@ def _table(rows: list[list[str]], header: list[str], keep: int = 2) -> str:
 
     cols = table_width()
     lines, dropped = fit_table(header, rows, cols, keep=keep, rule=True)
+    for column, note in (left_out or {}).items():
+        if column in dropped and note:
+            lines += textwrap.wrap(note, cols, break_on_hyphens=False)
     if dropped:
         lines += textwrap.wrap(M.COLUMNS_LEFT_OUT.format(columns=", ".join(dropped)), cols)
     return "\n".join(lines)
@@ -293,7 +299,10 @@ def _run_list(args) -> int:
              ", ".join(label + _range_text(s) for label, s in _supplies(p)) or "-",
              ", ".join(sorted(p.functions())) or "-", _kind(lib, p.id), p.title]
             for p in chosen]
-    print(_table(rows, ["id", "category", "supply", "pin functions", "kind", "title"], keep=4))
+    overrides = [p.id for p in chosen if p.id in lib.overrides]
+    note = M.OVERRIDES_LEFT_OUT.format(ids=", ".join(overrides)) if overrides else None
+    print(_table(rows, ["id", "category", "supply", "pin functions", "kind", "title"], keep=4,
+                 left_out={"kind": note}))
     return 0
 
 

@@ -63,5 +63,7 @@ def run_used_by(args, load) -> int:
         out = {"part": args.id, "uses": uses, "errors": errors}
         sys.stdout.write(json.dumps(out, indent=2, ensure_ascii=False) + "\n")
     else:
-        sys.stdout.write(format_uses(args.id, uses, len(paths)))
+        # a row too long for the terminal wraps, its rest indented; piped, one line a use
+        sys.stdout.write("".join(fitted(line) + "\n" for line in
+                                 format_uses(args.id, uses, len(paths)).splitlines()))
     return 2 if errors else 0
