@@ -161,7 +161,7 @@ def _provenance_lines(basis: str, source: str, today: _dt.date) -> list[str]:
     if source or basis not in NEEDS_SOURCE:
         return [line]
     return ["# Name the document this part's values come from: add to provenance",
-            '#   source = "datasheet rev C, 2024-03"  (pinlib parts check lists it until then)',
+            '#   source = "datasheet rev C, 2024-03"  (pinlib parts check asks until then)',
             line]
 
 
