@@ -554,6 +554,57 @@ def test_command_writes_markdown_with_its_charts(tmp_path):
         assert f"(board-charts/{c.name})" in text
 
 
+def test_command_rerun_leaves_only_the_charts_the_new_report_links(tmp_path, capsys):
+    """A rerun into the same folder removes the charts of the earlier run that the new
+    report no longer links (here its Monte Carlo histograms), and nothing of the user's:
+    other files, and an SVG named like a chart that pinlib did not write."""
+    pytest.importorskip("pinlib.studies.whatif")
+    out = tmp_path / "board.md"
+    folder = tmp_path / "board-charts"
+    assert main(["report", str(DEMO), "--md", str(out), "--monte-carlo", "50",
+                 "--seed", "1"]) == 0
+    first = {p.name for p in folder.iterdir()}
+    assert any("-mc-" in name for name in first)
+    mine = {"notes.txt": "my notes", "board-outline.svg": "<svg></svg>",
+            "99-my-sketch.svg": '<?xml version="1.0"?>\n<svg><title>mine</title></svg>'}
+    for name, text in mine.items():
+        (folder / name).write_text(text, encoding="utf-8")
+    capsys.readouterr()
+    assert main(["report", str(DEMO), "--md", str(out)]) == 0
+    text = out.read_text(encoding="utf-8")
+    linked = set(re.findall(r"\(board-charts/([^)]+)\)", text))
+    assert len(linked) == 24
+    assert {p.name for p in folder.iterdir()} == linked | set(mine)
+    for name, text in mine.items():
+        assert (folder / name).read_text(encoding="utf-8") == text
+    removed = len(first - linked)
+    assert removed > 0
+    assert f"removed {removed} chart files of an earlier run" in capsys.readouterr().err
+    assert not list(folder.glob(".*.tmp"))  # no temporary file left
+
+
+def test_command_names_an_old_chart_it_cannot_remove(tmp_path, capsys, monkeypatch):
+    out = tmp_path / "board.md"
+    assert main(["report", str(DEMO), "--md", str(out)]) == 0
+    folder = tmp_path / "board-charts"
+    old = folder / "99-gone-bus-edges.svg"  # a chart of an earlier run, as pinlib wrote it
+    old.write_bytes(next(folder.glob("01-*.svg")).read_bytes())
+    real = Path.unlink
+
+    def refuse(self, *a, **k):
+        if self.name == old.name:
+            raise PermissionError(13, "Permission denied")
+        return real(self, *a, **k)
+
+    monkeypatch.setattr(Path, "unlink", refuse)
+    capsys.readouterr()
+    assert main(["report", str(DEMO), "--md", str(out)]) == 0
+    err = capsys.readouterr().err
+    assert f"pinlib: warning: {old}: cannot remove this chart" in err
+    assert "removed" not in err.split("\n")[0]
+    assert old.exists() and out.exists()
+
+
 def test_command_leaves_an_old_report_whole_on_error(tmp_path, capsys):
     out = tmp_path / "review.html"
     out.write_text("old report", encoding="utf-8")
