@@ -165,6 +165,26 @@ def test_every_check_names_its_source(page, built, demo):
     assert all(a == b and c == b.upper() for a, b, c in rows)
 
 
+def test_a_fix_only_on_checks_that_fail_or_warn(page, built, demo):
+    """Advice goes with a problem: a passing check's row carries no fix (the line-delay
+    check states what would help whatever its status), a failing or warning one's does,
+    on both pages."""
+    _, result = demo
+    checks = [c for b in result.results() for _, _, c in b.all_checks()]
+    passing = [c for c in checks if c.status == "pass" and c.fix]
+    advised = [c for c in checks if c.status != "pass" and c.fix]
+    assert passing and advised  # the demo has both
+    md, _ = built.markdown()
+    rows = [r for r in md.splitlines() if r.startswith("| **PASS** |")]
+    assert rows and not any("fix:" in r for r in rows)
+    rows = re.findall(r'<tr class="r-pass">.*?</tr>', page, re.S)
+    assert rows and not any("fix:" in r for r in rows)
+    for c in passing:
+        assert review._m(c.fix) not in md and html.escape(c.fix) not in page
+    for c in advised:
+        assert review._m(c.fix) in md and html.escape(c.fix) in page
+
+
 def test_parts_with_the_provenance_of_each_value(page, built, demo):
     design, result = demo
     parts = snapshot(design, result)["parts"]

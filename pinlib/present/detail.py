@@ -15,7 +15,7 @@ import textwrap
 from pinlib.core.labels import check_label, figure_label, humanize, shown_figures
 from pinlib.model.result import CAUTION, BusResult, Group, margin_text
 from pinlib.present.terminal import status_word, wrap
-from pinlib.present.values import counts, format_value
+from pinlib.present.values import counts, format_value, with_fix
 
 __all__ = ["detail_lines", "table"]
 
@@ -71,9 +71,7 @@ def _checks(g: Group, indent: str, cols: int, sources: dict[str, int]) -> list[s
         text = f"{status_word(c.status)} {check_label(c.id)}{about}: {c.message}"
         if c.reason and c.reason not in c.message:
             text += f" ({c.reason})"
-        if c.fix and c.fix not in c.message:
-            text += f"; fix: {c.fix}"
-        out += wrap(text, cols, indent)
+        out += wrap(with_fix(text, c), cols, indent)
     return out
 
 
