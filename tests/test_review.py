@@ -185,6 +185,33 @@ def test_a_fix_only_on_checks_that_fail_or_warn(page, built, demo):
         assert review._m(c.fix) in md and html.escape(c.fix) in page
 
 
+def test_figures_under_readable_labels_each_quantity_once(page, built, demo):
+    """The Figures tables read as `check --detail` does: a label, not an id, and a
+    quantity that repeats another (a line's copy of the bus figure, the pull-up twice)
+    shown once (pinlib.core.labels.shown_figures)."""
+    from pinlib.core.labels import figure_label, shown_figures
+
+    _, result = demo
+    md, _ = built.markdown()
+    groups = [g for b in result.results() for _, _, g, _ in review.text._groups(b)
+              if g.figures]
+    shown = [(n, g.figures[n]) for g in groups for n in shown_figures(g.figures)]
+    every = sum(len(g.figures) for g in groups)
+    assert 0 < len(shown) < every  # the demo repeats some quantities
+    md_rows = re.findall(r"^\| (?!Figure \|)(?!---)([^|]+) \| ([^|]+) \|$", md, re.M)
+    html_rows = re.findall(r"<div><dt>(.*?)</dt><dd>(.*?)</dd></div>", page)
+    assert len(md_rows) == len(html_rows) == len(shown)
+    for (name, f), (md_label, md_value), (h_label, h_value) in zip(
+            shown, md_rows, html_rows, strict=True):
+        label, value = figure_label(name), review.text._value(f.value, f.unit)
+        assert (md_label, md_value) == (review._m(label), review._m(value))
+        assert (h_label, h_value) == (html.escape(label), html.escape(value))
+    cells = {label for label, _ in md_rows} | {label for label, _ in html_rows}
+    for raw in ("rise_time_10_90", "max_clock_limited_by", "bus_capacitance_sda"):
+        assert not any(raw in c or review._m(raw) in c for c in cells)
+    assert "Highest clock set by" in md and "Rise time, 10–90 %" in md
+
+
 def test_parts_with_the_provenance_of_each_value(page, built, demo):
     design, result = demo
     parts = snapshot(design, result)["parts"]

@@ -12,10 +12,10 @@ from __future__ import annotations
 
 import textwrap
 
-from pinlib.core.labels import check_label, figure_label, humanize, shown_figures
+from pinlib.core.labels import check_label, humanize
 from pinlib.model.result import CAUTION, BusResult, Group, margin_text
 from pinlib.present.terminal import status_word, wrap
-from pinlib.present.values import counts, format_value, with_fix
+from pinlib.present.values import counts, figure_cells, format_value, with_fix
 
 __all__ = ["detail_lines", "table"]
 
@@ -40,17 +40,9 @@ def table(rows: list[list[str]], indent: str, cols: int, flex: int) -> list[str]
     return out
 
 
-def _same(a, b) -> bool:
-    return a.value == b.value and a.unit == b.unit
-
-
 def _figures(g: Group, indent: str, cols: int) -> list[str]:
-    names = shown_figures(g.figures, same=_same)
-    if not names:
-        return []
-    rows = [[figure_label(n), format_value(g.figures[n].value, g.figures[n].unit)]
-            for n in names]
-    return table(rows, indent, cols, flex=0)
+    rows = [list(cells) for cells in figure_cells(g.figures)]
+    return table(rows, indent, cols, flex=0) if rows else []
 
 
 def _checks(g: Group, indent: str, cols: int, sources: dict[str, int]) -> list[str]:
