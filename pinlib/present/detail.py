@@ -23,14 +23,19 @@ __all__ = ["detail_lines", "table"]
 _MIN_FLEX = 12
 
 
-def table(rows: list[list[str]], indent: str, cols: int, flex: int) -> list[str]:
-    """Rows as aligned columns; column ``flex`` wraps so the table fits ``cols``."""
+def table(rows: list[list[str]], indent: str, cols: int, flex: int,
+          heads: dict[int, str] | None = None) -> list[str]:
+    """Rows as aligned columns; column ``flex`` wraps so the table fits ``cols``.
+    ``heads``: a line to print, as it is, before row ``i`` (a place's name), the columns
+    aligned over every row."""
     n = len(rows[0])
     widths = [max(len(r[i]) for r in rows) for i in range(n)]
     others = sum(w for i, w in enumerate(widths) if i != flex) + 2 * (n - 1) + len(indent)
     widths[flex] = max(_MIN_FLEX, min(widths[flex], cols - others))
     out = []
-    for r in rows:
+    for i, r in enumerate(rows):
+        if heads and i in heads:
+            out.append(heads[i])
         pieces = textwrap.wrap(r[flex], widths[flex], break_on_hyphens=False) or [""]
         for k, piece in enumerate(pieces):
             cells = [(piece if i == flex else (r[i] if k == 0 else ""))
