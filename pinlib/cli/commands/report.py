@@ -202,9 +202,11 @@ def run(args) -> int:
     drawn = sum(1 for c in review.all_charts() if c.svg is not None)
     missing = [c for c in review.all_charts() if c.svg is None]
     extra = f" and {len(written) - 1} chart files" if len(written) > 1 else ""
+    from pinlib.present.terminal import fitted
+
     gone = f"; removed {stale} chart files of an earlier run" if stale else ""
-    print(f"wrote {written[0]}{extra} ({drawn} charts; design {result.status}){gone}",
-          file=sys.stderr)
+    print(fitted(f"wrote {written[0]}{extra} ({drawn} charts; design {result.status}){gone}",
+                 sys.stderr), file=sys.stderr)
     for c in missing:
         print("pinlib: note: " + M.CHART_NOT_DRAWN_WITH_TITLE.format(title=c.title, error=c.error),
               file=sys.stderr)
