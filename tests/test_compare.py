@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import json
 import math
+import re
 import textwrap
 from pathlib import Path
 
@@ -586,7 +587,8 @@ def test_swap_prints_side_by_side_and_exits_like_check(board, capsys):
     out = capsys.readouterr().out
     assert code == 1  # the swapped design fails
     assert "before" in out and "after" in out
-    assert "* rise_time_sda" in out
+    # the rise time (SDA's and SCL's the same: shown once, as the bus's) moved, marked
+    assert re.search(r"^\*\s+Rise time tr \(30–70 %\)  ", out, re.M)
     assert "rise-time SDA: pass → fail" in out
     assert "U4 SDA c_in 8 pF → 80 pF" in out
     assert board.read_bytes() == original  # no --write: untouched
@@ -595,10 +597,39 @@ def test_swap_prints_side_by_side_and_exits_like_check(board, capsys):
     short = capsys.readouterr().out
     assert "rise-time SDA: pass → fail" in short and "U4 SDA c_in 8 pF → 80 pF" in short
     assert "Figures that moved:" in short and "Rise time tr (30–70 %)" in short
-    assert "* rise_time_sda" not in short and len(short.splitlines()) < len(out.splitlines())
+    assert not re.search(r"^\*\s+Rise time", short, re.M)
+    assert len(short.splitlines()) < len(out.splitlines())
     # a substitution that keeps the bus passing exits 0
     assert main(["swap", str(board), "U4=eeprom-i2c"]) == 0
     assert "No check changed status." in capsys.readouterr().out
+
+
+def test_swap_detail_shows_each_figure_once_under_its_label(board, capsys, monkeypatch):
+    """The side-by-side table reads as the figures that moved and `check --detail` do:
+    readable labels, not ids, and each quantity once (shown_changes), fitted to 80
+    columns."""
+    from types import SimpleNamespace
+
+    from pinlib.core.labels import FIGURES, figure_label
+    from pinlib.studies.compare.changes import shown_changes
+
+    monkeypatch.setenv("COLUMNS", "200")
+    assert main(["swap", str(board), "U4=eeprom-hicap", "--json"]) == 1
+    every = [SimpleNamespace(**f) for f in json.loads(capsys.readouterr().out)["figures"]]
+    shown = shown_changes(every)
+    assert 0 < len(shown) < len(every)  # the board's lines repeat the bus's figures
+    assert main(["swap", str(board), "U4=eeprom-hicap", "--detail"]) == 1
+    wide = capsys.readouterr().out.splitlines()
+    head = next(i for i, ln in enumerate(wide) if ln.split()[:2] == ["figure", "before"])
+    rows = [ln for ln in wide[head + 1:wide.index("", head)] if ln[:1] in ("*", " ")]
+    assert len(rows) == len(shown)
+    for ln, f in zip(rows, shown, strict=True):
+        assert ln[3:].startswith(figure_label(f.name) + "  ")
+    ids = [name for name in FIGURES if "_" in name] + ["rise_time_sda", "pullup_scl"]
+    assert not any(name in ln for ln in rows for name in ids)
+    monkeypatch.setenv("COLUMNS", "80")
+    assert main(["swap", str(board), "U4=eeprom-hicap", "--detail"]) == 1
+    assert max(len(ln) for ln in capsys.readouterr().out.splitlines()) <= 80
 
 
 def test_swap_text_fits_the_width_without_colour(board, capsys, monkeypatch):

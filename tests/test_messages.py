@@ -981,6 +981,25 @@ def _(env):
     return _fails(lambda e: rec.new_part(lib, "fresh", "eeprom-i2c", plain / "sub"), env)
 
 
+@case("CANNOT_REMOVE_OLD_CHART",
+      M.CANNOT_REMOVE_OLD_CHART.format(reason=os.strerror(errno.EACCES)))
+def _(env):
+    from pinlib.present.review.draw import CHART_FILE_HEAD
+
+    design = env.write("design.toml", HEAD + I2C_BUS)
+    old = env.write("r-charts/99-gone-edges.svg", CHART_FILE_HEAD + 'x"></svg>\n')
+    real = Path.unlink
+
+    def refuse(self, *a, **k):
+        if self.name == old.name:
+            raise PermissionError(errno.EACCES, os.strerror(errno.EACCES))
+        return real(self, *a, **k)
+
+    env.monkeypatch.setattr(Path, "unlink", refuse)
+    assert main(["report", str(design), "--md", str(env.tmp / "r.md")]) == 0
+    return env.capsys.readouterr().err
+
+
 @case("FILE_EXISTS")
 def _(env):
     lib = load_library(env=False)

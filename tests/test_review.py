@@ -165,6 +165,53 @@ def test_every_check_names_its_source(page, built, demo):
     assert all(a == b and c == b.upper() for a, b, c in rows)
 
 
+def test_a_fix_only_on_checks_that_fail_or_warn(page, built, demo):
+    """Advice goes with a problem: a passing check's row carries no fix (the line-delay
+    check states what would help whatever its status), a failing or warning one's does,
+    on both pages."""
+    _, result = demo
+    checks = [c for b in result.results() for _, _, c in b.all_checks()]
+    passing = [c for c in checks if c.status == "pass" and c.fix]
+    advised = [c for c in checks if c.status != "pass" and c.fix]
+    assert passing and advised  # the demo has both
+    md, _ = built.markdown()
+    rows = [r for r in md.splitlines() if r.startswith("| **PASS** |")]
+    assert rows and not any("fix:" in r for r in rows)
+    rows = re.findall(r'<tr class="r-pass">.*?</tr>', page, re.S)
+    assert rows and not any("fix:" in r for r in rows)
+    for c in passing:
+        assert review._m(c.fix) not in md and html.escape(c.fix) not in page
+    for c in advised:
+        assert review._m(c.fix) in md and html.escape(c.fix) in page
+
+
+def test_figures_under_readable_labels_each_quantity_once(page, built, demo):
+    """The Figures tables read as `check --detail` does: a label, not an id, and a
+    quantity that repeats another (a line's copy of the bus figure, the pull-up twice)
+    shown once (pinlib.core.labels.shown_figures)."""
+    from pinlib.core.labels import figure_label, shown_figures
+
+    _, result = demo
+    md, _ = built.markdown()
+    groups = [g for b in result.results() for _, _, g, _ in review.text._groups(b)
+              if g.figures]
+    shown = [(n, g.figures[n]) for g in groups for n in shown_figures(g.figures)]
+    every = sum(len(g.figures) for g in groups)
+    assert 0 < len(shown) < every  # the demo repeats some quantities
+    md_rows = re.findall(r"^\| (?!Figure \|)(?!---)([^|]+) \| ([^|]+) \|$", md, re.M)
+    html_rows = re.findall(r"<div><dt>(.*?)</dt><dd>(.*?)</dd></div>", page)
+    assert len(md_rows) == len(html_rows) == len(shown)
+    for (name, f), (md_label, md_value), (h_label, h_value) in zip(
+            shown, md_rows, html_rows, strict=True):
+        label, value = figure_label(name), review.text._value(f.value, f.unit)
+        assert (md_label, md_value) == (review._m(label), review._m(value))
+        assert (h_label, h_value) == (html.escape(label), html.escape(value))
+    cells = {label for label, _ in md_rows} | {label for label, _ in html_rows}
+    for raw in ("rise_time_10_90", "max_clock_limited_by", "bus_capacitance_sda"):
+        assert not any(raw in c or review._m(raw) in c for c in cells)
+    assert "Highest clock set by" in md and "Rise time, 10–90 %" in md
+
+
 def test_parts_with_the_provenance_of_each_value(page, built, demo):
     design, result = demo
     parts = snapshot(design, result)["parts"]
@@ -552,6 +599,57 @@ def test_command_writes_markdown_with_its_charts(tmp_path):
     assert len(charts) == 24
     for c in charts:
         assert f"(board-charts/{c.name})" in text
+
+
+def test_command_rerun_leaves_only_the_charts_the_new_report_links(tmp_path, capsys):
+    """A rerun into the same folder removes the charts of the earlier run that the new
+    report no longer links (here its Monte Carlo histograms), and nothing of the user's:
+    other files, and an SVG named like a chart that pinlib did not write."""
+    pytest.importorskip("pinlib.studies.whatif")
+    out = tmp_path / "board.md"
+    folder = tmp_path / "board-charts"
+    assert main(["report", str(DEMO), "--md", str(out), "--monte-carlo", "50",
+                 "--seed", "1"]) == 0
+    first = {p.name for p in folder.iterdir()}
+    assert any("-mc-" in name for name in first)
+    mine = {"notes.txt": "my notes", "board-outline.svg": "<svg></svg>",
+            "99-my-sketch.svg": '<?xml version="1.0"?>\n<svg><title>mine</title></svg>'}
+    for name, text in mine.items():
+        (folder / name).write_text(text, encoding="utf-8")
+    capsys.readouterr()
+    assert main(["report", str(DEMO), "--md", str(out)]) == 0
+    text = out.read_text(encoding="utf-8")
+    linked = set(re.findall(r"\(board-charts/([^)]+)\)", text))
+    assert len(linked) == 24
+    assert {p.name for p in folder.iterdir()} == linked | set(mine)
+    for name, text in mine.items():
+        assert (folder / name).read_text(encoding="utf-8") == text
+    removed = len(first - linked)
+    assert removed > 0
+    assert f"removed {removed} chart files of an earlier run" in capsys.readouterr().err
+    assert not list(folder.glob(".*.tmp"))  # no temporary file left
+
+
+def test_command_names_an_old_chart_it_cannot_remove(tmp_path, capsys, monkeypatch):
+    out = tmp_path / "board.md"
+    assert main(["report", str(DEMO), "--md", str(out)]) == 0
+    folder = tmp_path / "board-charts"
+    old = folder / "99-gone-bus-edges.svg"  # a chart of an earlier run, as pinlib wrote it
+    old.write_bytes(next(folder.glob("01-*.svg")).read_bytes())
+    real = Path.unlink
+
+    def refuse(self, *a, **k):
+        if self.name == old.name:
+            raise PermissionError(13, "Permission denied")
+        return real(self, *a, **k)
+
+    monkeypatch.setattr(Path, "unlink", refuse)
+    capsys.readouterr()
+    assert main(["report", str(DEMO), "--md", str(out)]) == 0
+    err = capsys.readouterr().err
+    assert f"pinlib: warning: {old}: cannot remove this chart" in err
+    assert "removed" not in err.split("\n")[0]
+    assert old.exists() and out.exists()
 
 
 def test_command_leaves_an_old_report_whole_on_error(tmp_path, capsys):

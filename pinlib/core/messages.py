@@ -162,6 +162,8 @@ BUILTIN_NOT_WRITTEN_BECAUSE = "the built-in library is not written to ({reason})
 INVALID_PART_ID = "not a valid part id"
 PART_ID_EXISTS = "a part with this id exists"
 CANNOT_CREATE_FOLDER = "cannot create the folder: {reason}"
+CANNOT_REMOVE_OLD_CHART = ("cannot remove this chart of an earlier report ({reason}); the new "
+                           "report does not link it")
 FILE_EXISTS = "the file exists"
 WOULD_BREAK_CHILD = "the value would break '{child}', which extends this part"
 VALUE_REFUSED = "the value is refused: {problem}"

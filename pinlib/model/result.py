@@ -87,12 +87,19 @@ class Check:
     source: str
     message: str
     subject: str | None = None  # the signal, device or pin the check is about
-    fix: str | None = None      # what would make a failing check pass
+    fix: str | None = None      # what would help, as the check's rule states it (see advice)
     details: dict = field(default_factory=dict)
     #: the unit of an absolute margin (value minus limit, or limit minus value) where a
     #: margin relative to the limit means nothing (a limit of 0 V); None: relative
     margin_unit: str | None = None
     reason: str | None = None   # why the value does not exist (value and margin None)
+
+    @property
+    def advice(self) -> str | None:
+        """The fix to show people: a failing or warning check's ``fix``, and None for a
+        check that passes (a rule may state its fix whatever the status; advice goes with
+        a problem only).  Every text that shows a fix reads it here."""
+        return None if self.status == "pass" else self.fix
 
     def to_json(self) -> dict:
         out = {

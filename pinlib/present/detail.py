@@ -12,10 +12,10 @@ from __future__ import annotations
 
 import textwrap
 
-from pinlib.core.labels import check_label, figure_label, humanize, shown_figures
+from pinlib.core.labels import check_label, humanize
 from pinlib.model.result import CAUTION, BusResult, Group, margin_text
 from pinlib.present.terminal import status_word, wrap
-from pinlib.present.values import counts, format_value
+from pinlib.present.values import counts, figure_cells, format_value, with_fix
 
 __all__ = ["detail_lines", "table"]
 
@@ -23,14 +23,19 @@ __all__ = ["detail_lines", "table"]
 _MIN_FLEX = 12
 
 
-def table(rows: list[list[str]], indent: str, cols: int, flex: int) -> list[str]:
-    """Rows as aligned columns; column ``flex`` wraps so the table fits ``cols``."""
+def table(rows: list[list[str]], indent: str, cols: int, flex: int,
+          heads: dict[int, str] | None = None) -> list[str]:
+    """Rows as aligned columns; column ``flex`` wraps so the table fits ``cols``.
+    ``heads``: a line to print, as it is, before row ``i`` (a place's name), the columns
+    aligned over every row."""
     n = len(rows[0])
     widths = [max(len(r[i]) for r in rows) for i in range(n)]
     others = sum(w for i, w in enumerate(widths) if i != flex) + 2 * (n - 1) + len(indent)
     widths[flex] = max(_MIN_FLEX, min(widths[flex], cols - others))
     out = []
-    for r in rows:
+    for i, r in enumerate(rows):
+        if heads and i in heads:
+            out.append(heads[i])
         pieces = textwrap.wrap(r[flex], widths[flex], break_on_hyphens=False) or [""]
         for k, piece in enumerate(pieces):
             cells = [(piece if i == flex else (r[i] if k == 0 else ""))
@@ -40,17 +45,9 @@ def table(rows: list[list[str]], indent: str, cols: int, flex: int) -> list[str]
     return out
 
 
-def _same(a, b) -> bool:
-    return a.value == b.value and a.unit == b.unit
-
-
 def _figures(g: Group, indent: str, cols: int) -> list[str]:
-    names = shown_figures(g.figures, same=_same)
-    if not names:
-        return []
-    rows = [[figure_label(n), format_value(g.figures[n].value, g.figures[n].unit)]
-            for n in names]
-    return table(rows, indent, cols, flex=0)
+    rows = [list(cells) for cells in figure_cells(g.figures)]
+    return table(rows, indent, cols, flex=0) if rows else []
 
 
 def _checks(g: Group, indent: str, cols: int, sources: dict[str, int]) -> list[str]:
@@ -71,9 +68,7 @@ def _checks(g: Group, indent: str, cols: int, sources: dict[str, int]) -> list[s
         text = f"{status_word(c.status)} {check_label(c.id)}{about}: {c.message}"
         if c.reason and c.reason not in c.message:
             text += f" ({c.reason})"
-        if c.fix and c.fix not in c.message:
-            text += f"; fix: {c.fix}"
-        out += wrap(text, cols, indent)
+        out += wrap(with_fix(text, c), cols, indent)
     return out
 
 

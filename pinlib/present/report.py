@@ -23,7 +23,7 @@ from pinlib.core.labels import check_label, humanize
 from pinlib.model.result import BusResult, Check, DesignResult, margin_text
 from pinlib.present.detail import detail_lines
 from pinlib.present.terminal import DEFAULT_WIDTH, status_word, wrap
-from pinlib.present.values import counts, format_value
+from pinlib.present.values import counts, format_value, with_fix
 
 __all__ = ["format_text", "format_value", "problem_line", "bus_line", "coupling_line", "counts",
            "CAUTION_LINE", "MODES", "paint", "fit"]
@@ -69,9 +69,7 @@ def problem_line(bus: BusResult, where: str | None, signal: str | None, c: Check
     who = " ".join(x for x in (signal.upper() if signal else None, c.subject) if x)
     text = f"{status_word(c.status)} {place}{' ' + who if who else ''}: {check_label(c.id)}"
     text += (": " if isinstance(c.value, bool) or c.value is None else " ") + _against(c)
-    if c.fix and c.fix not in text:  # a message that is shown may carry its fix already
-        text += f"; fix: {c.fix}"
-    return text
+    return with_fix(text, c)
 
 
 def _fig_text(group, name: str) -> str | None:

@@ -1,12 +1,36 @@
-"""A result's values as text: figures and check values with SI prefixes, and the count
-of checks by status (shared by the summary and the detail of `pinlib check`)."""
+"""A result's values as text: figures and check values with SI prefixes, a group's
+figures under their labels, a check's fix, and the count of checks by status (shared by
+the summary and the detail of `pinlib check` and by the design-review report)."""
 
 from __future__ import annotations
 
-from pinlib.core.quantity import format_value  # noqa: F401 - its home is core.quantity
-from pinlib.model.result import DesignResult
+from collections.abc import Mapping
 
-__all__ = ["format_value", "counts"]
+from pinlib.core.labels import figure_label, shown_figures
+from pinlib.core.quantity import format_value
+from pinlib.model.result import Check, DesignResult, Figure
+
+__all__ = ["format_value", "counts", "with_fix", "figure_cells"]
+
+
+def _same(a: Figure, b: Figure) -> bool:
+    return a.value == b.value and a.unit == b.unit
+
+
+def figure_cells(figures: Mapping[str, Figure]) -> list[tuple[str, str]]:
+    """A group's figures as people read them: (label, value with its unit) in table
+    order, each quantity once (:func:`pinlib.core.labels.shown_figures`: a line's copy of
+    the bus figure, the pull-up that is the resistor, shown once); ids stay in the JSON."""
+    return [(figure_label(n), format_value(figures[n].value, figures[n].unit))
+            for n in shown_figures(figures, same=_same)]
+
+
+def with_fix(text: str, c: Check) -> str:
+    """``text``, what is shown of a check, with "; fix: ..." added: only for a check that
+    fails or warns (:attr:`~pinlib.model.result.Check.advice`), and only when ``text``
+    does not hold the fix already (a message may carry it)."""
+    fix = c.advice
+    return f"{text}; fix: {fix}" if fix and fix not in text else text
 
 
 def counts(result: DesignResult) -> dict[str, int]:

@@ -121,6 +121,30 @@ def _monte_carlo(design, n: int, seed: int | None, result):
                      hint="write the report without --monte-carlo")
 
 
+def _remove_stale_charts(folder: Path, keep: set) -> int:
+    """Remove from ``folder`` the chart files pinlib wrote on an earlier run that are not
+    named in ``keep`` (the files just written), and return how many went.  Only pinlib's own
+    charts go (:func:`pinlib.present.review.draw.is_chart_file`: named and begun as
+    pinlib writes them); every other file stays.  One that cannot be removed is named in
+    a warning: the report itself is written."""
+    from pinlib.present.review.draw import is_chart_file
+
+    if not folder.is_dir():
+        return 0
+    removed = 0
+    for path in sorted(folder.iterdir()):
+        if path.name in keep or not is_chart_file(path):
+            continue
+        try:
+            path.unlink()
+        except OSError as exc:
+            print(f"pinlib: warning: {path}: " + M.CANNOT_REMOVE_OLD_CHART.format(
+                reason=exc.strerror), file=sys.stderr)
+            continue
+        removed += 1
+    return removed
+
+
 def run(args) -> int:
     from pinlib.core.errors import InputError
     from pinlib.core.tomlfile import atomic_write
@@ -151,6 +175,7 @@ def run(args) -> int:
     if args.monte_carlo is not None:
         mc = _monte_carlo(design, args.monte_carlo, args.seed, result)
     review = build_review(design, result, changes=changes, mc=mc)
+    stale = 0
     if args.html:
         atomic_write(target, review.html())
         written = [target]
@@ -172,11 +197,16 @@ def run(args) -> int:
             written.append(path)
         atomic_write(target, text)  # last: the text never links a chart not yet written
         written.insert(0, target)
+        # then the charts of an earlier run that the new text no longer links
+        stale = _remove_stale_charts(target.parent / folder, {p.name for p in written})
     drawn = sum(1 for c in review.all_charts() if c.svg is not None)
     missing = [c for c in review.all_charts() if c.svg is None]
     extra = f" and {len(written) - 1} chart files" if len(written) > 1 else ""
-    print(f"wrote {written[0]}{extra} ({drawn} charts; design {result.status})",
-          file=sys.stderr)
+    from pinlib.present.terminal import fitted
+
+    gone = f"; removed {stale} chart files of an earlier run" if stale else ""
+    print(fitted(f"wrote {written[0]}{extra} ({drawn} charts; design {result.status}){gone}",
+                 sys.stderr), file=sys.stderr)
     for c in missing:
         print("pinlib: note: " + M.CHART_NOT_DRAWN_WITH_TITLE.format(title=c.title, error=c.error),
               file=sys.stderr)

@@ -128,26 +128,28 @@ def _refusals(design, swaps: dict[str, str]) -> list[dict]:
 
 
 def _table(rows) -> list[str]:
+    """Every figure before and after, by place: under readable labels, each quantity once
+    (:func:`pinlib.studies.compare.changes.shown_changes`, as the figures that moved and
+    ``check --detail`` show them), a figure that moved beyond the threshold marked "*",
+    the label column wrapped to fit the width."""
+    from pinlib.core.labels import figure_label
+    from pinlib.present.detail import table
+    from pinlib.present.terminal import width
     from pinlib.studies.compare import format_change, format_figure
+    from pinlib.studies.compare.changes import shown_changes
 
-    out = []
-    name_w = max([len(r.name) for r in rows] + [6]) + 2
-    cells = [(format_figure(r.old, r.unit), format_figure(r.new, r.unit)) for r in rows]
-    old_w = max([len(c[0]) for c in cells] + [6]) + 2
-    new_w = max([len(c[1]) for c in cells] + [5]) + 2
-    out.append(f"  {'figure':<{name_w}}{'before':<{old_w}}{'after':<{new_w}}change")
-    path = None
-    for row, (old, new) in zip(rows, cells, strict=True):
+    cells, heads, path = [["", "figure", "before", "after", "change"]], {}, None
+    for row in shown_changes(rows):
         if row.path != path:
-            path = row.path
-            out.append(f"{path}")
-        mark = "*" if row.moved else " "
+            path = heads[len(cells)] = row.path
         change = format_change(row.change).strip("()") if row.kind in ("moved", "same") else {
             "added": "new", "removed": "gone", "changed": "differs"}.get(row.kind, "")
         if row.kind == "same" and row.change == 0:
             change = ""
-        out.append(f"{mark} {row.name:<{name_w}}{old:<{old_w}}{new:<{new_w}}{change}".rstrip())
-    return out
+        cells.append(["*" if row.moved else "", figure_label(row.name),
+                      format_figure(row.old, row.unit), format_figure(row.new, row.unit),
+                      change])
+    return table(cells, "", width(), flex=1, heads=heads)
 
 
 def run(args) -> int:

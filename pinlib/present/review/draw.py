@@ -35,6 +35,30 @@ class ReviewChart:
     error: str | None = None
 
 
+#: The name of a chart file that ``pinlib report --md`` writes: a key of :class:`_Keys`
+#: (a number, then slugs joined by "-") and ".svg".
+CHART_FILE_NAME = re.compile(r"\d{2,}(?:-[a-z0-9]+)+\.svg")
+#: How every chart file that ``pinlib report --md`` writes begins (the XML prologue, then
+#: the ``<svg`` that :func:`_clean_svg` labels).
+CHART_FILE_HEAD = '<?xml version="1.0" encoding="UTF-8"?>\n<svg role="img" aria-label="'
+
+
+def is_chart_file(path) -> bool:
+    """Whether ``path`` is a chart file pinlib wrote: named like one and beginning as
+    one does (a user's SVG that happens to be named like a chart is not)."""
+    from pathlib import Path
+
+    path = Path(path)
+    if not CHART_FILE_NAME.fullmatch(path.name) or path.is_symlink() or not path.is_file():
+        return False
+    try:
+        with open(path, "rb") as fh:
+            head = fh.read(len(CHART_FILE_HEAD.encode("utf-8")))
+    except OSError:
+        return False
+    return head == CHART_FILE_HEAD.encode("utf-8")
+
+
 def _slug(text: str) -> str:
     return re.sub(r"[^a-z0-9]+", "-", str(text).lower()).strip("-") or "x"
 

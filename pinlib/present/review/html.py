@@ -31,8 +31,8 @@ from pinlib.present.review.text import (
     _message,
     _no_snapshot_text,
     _route_of,
-    _value,
 )
+from pinlib.present.values import figure_cells
 
 _CSS = """\
 :root{--ink:#111;--muted:#4a4a4a;--rule:#c8c8c8;--head:#eef0f2}
@@ -191,9 +191,8 @@ class _Html:
         h = f"h{level}"
         if g.figures:
             self.w(f"<{h}>Figures</{h}>", f'<dl class="figs" aria-label="Figures of {_e(label)}">')
-            for name, f in g.figures.items():
-                self.w(f"<div><dt><code>{_e(name)}</code></dt>"
-                       f"<dd>{_e(_value(f.value, f.unit))}</dd></div>")
+            for name, value in figure_cells(g.figures):
+                self.w(f"<div><dt>{_e(name)}</dt><dd>{_e(value)}</dd></div>")
             self.w("</dl>")
         if g.checks:
             self.w(f"<{h}>Checks</{h}>", "<table>",

@@ -30,8 +30,8 @@ from pinlib.present.review.text import (
     _margin,
     _message,
     _route_of,
-    _value,
 )
+from pinlib.present.values import figure_cells
 
 # Every user-written text (titles, ids, descriptions, sources, part values, paths) goes
 # through _mt: one line (newlines and runs of spaces become one space), the characters
@@ -167,8 +167,7 @@ class _Markdown:
         if g.figures:
             self.w(f"{h} Figures", "")
             self.w(*_table(["Figure", "Value"],
-                           [[f"`{name}`", _m(_value(f.value, f.unit))]
-                            for name, f in g.figures.items()]))
+                           [[_m(label), _m(value)] for label, value in figure_cells(g.figures)]))
         if g.checks:
             self.w(f"{h} Checks", "")
             rows = []

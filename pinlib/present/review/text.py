@@ -7,6 +7,7 @@ from pinlib.core import messages as M
 from pinlib.model.result import BusResult, Check, DesignResult, margin_text
 from pinlib.present.report import format_value
 from pinlib.present.review.draw import _slug
+from pinlib.present.values import with_fix
 
 _MARK = {"pass": "PASS", "warn": "WARN", "fail": "FAIL"}
 _STATUS_WORD = {"pass": "passes", "warn": "passes with a margin under the warning threshold",
@@ -32,10 +33,7 @@ def _check_cells(c: Check) -> tuple[str, str]:
 
 
 def _message(c: Check) -> str:
-    text = c.message
-    if c.fix and c.fix not in text:
-        text += f"; fix: {c.fix}"
-    return text
+    return with_fix(c.message, c)
 
 
 def _heading(b) -> str:
