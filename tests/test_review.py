@@ -212,6 +212,21 @@ def test_figures_under_readable_labels_each_quantity_once(page, built, demo):
     assert "Highest clock set by" in md and "Rise time, 10–90 %" in md
 
 
+def test_check_rows_name_checks_by_label(page, built, demo):
+    """The Checks tables name a check as `check --detail` does ("Line delay ≤ clock
+    period"), not by its id (`line-delay`); the page keeps the id in the cell's title."""
+    from pinlib.core.labels import check_label
+
+    _, result = demo
+    md, _ = built.markdown()
+    ids = {c.id for b in result.results() for _, _, c in b.all_checks()}
+    assert "line-delay" in ids
+    for cid in ids:
+        assert f"`{cid}`" not in md and f"<code>{cid}</code>" not in page
+        assert f"| {review._m(check_label(cid))} |" in md
+        assert f'<td title="{cid}">{html.escape(check_label(cid))}</td>' in page
+
+
 def test_parts_with_the_provenance_of_each_value(page, built, demo):
     design, result = demo
     parts = snapshot(design, result)["parts"]

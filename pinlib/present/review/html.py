@@ -8,6 +8,7 @@ import re
 
 from pinlib import __version__
 from pinlib.core import messages as M
+from pinlib.core.labels import check_label
 from pinlib.model.result import CAUTION, BusResult, Group
 from pinlib.present.review.draw import ReviewChart, _slug
 from pinlib.present.review.montecarlo import _MC_HEAD, _mc_cells, _mc_summary
@@ -203,7 +204,8 @@ class _Html:
             for c in g.checks:
                 value, limit = _check_cells(c)
                 self.w(f'<tr class="r-{c.status}"><td>{_badge(c.status)}</td>'
-                       f"<td><code>{_e(c.id)}</code></td><td>{_e(c.subject or '')}</td>"
+                       f'<td title="{_e(c.id)}">{_e(check_label(c.id))}</td>'
+                       f"<td>{_e(c.subject or '')}</td>"
                        f'<td class="num">{_e(value)}</td><td class="num">{_e(limit)}</td>'
                        f'<td class="num">{_e(_margin(c))}</td>'
                        f'<td class="msg">{_e(_message(c))}</td>'

@@ -8,6 +8,7 @@ import re
 
 from pinlib import __version__
 from pinlib.core import messages as M
+from pinlib.core.labels import check_label
 from pinlib.model.result import CAUTION, BusResult, Group
 from pinlib.present.review.draw import ReviewChart
 from pinlib.present.review.montecarlo import _MC_HEAD, _mc_cells, _mc_summary
@@ -173,7 +174,7 @@ class _Markdown:
             rows = []
             for c in g.checks:
                 value, limit = _check_cells(c)
-                rows.append([f"**{_MARK[c.status]}**", f"`{c.id}`", _m(c.subject or ""),
+                rows.append([f"**{_MARK[c.status]}**", _m(check_label(c.id)), _m(c.subject or ""),
                              _m(value), _m(limit), _m(_margin(c)), _m(_message(c)),
                              _m(c.source)])
             self.w(*_table(["Status", "Check", "Subject", "Value", "Limit", "Margin",
