@@ -13,7 +13,7 @@ from __future__ import annotations
 import textwrap
 
 from pinlib.core.labels import check_label, figure_label, humanize, shown_figures
-from pinlib.model.result import CAUTION, BusResult, Group, margin_text
+from pinlib.model.result import CAUTION, BusResult, Group, figure_text, margin_text
 from pinlib.present.terminal import status_word, wrap
 from pinlib.present.values import counts, format_value
 
@@ -48,8 +48,7 @@ def _figures(g: Group, indent: str, cols: int) -> list[str]:
     names = shown_figures(g.figures, same=_same)
     if not names:
         return []
-    rows = [[figure_label(n), format_value(g.figures[n].value, g.figures[n].unit)]
-            for n in names]
+    rows = [[figure_label(n), figure_text(g.figures[n])] for n in names]
     return table(rows, indent, cols, flex=0)
 
 

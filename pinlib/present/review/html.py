@@ -8,7 +8,7 @@ import re
 
 from pinlib import __version__
 from pinlib.core import messages as M
-from pinlib.model.result import CAUTION, BusResult, Group
+from pinlib.model.result import CAUTION, BusResult, Group, figure_text
 from pinlib.present.review.draw import ReviewChart, _slug
 from pinlib.present.review.montecarlo import _MC_HEAD, _mc_cells, _mc_summary
 from pinlib.present.review.parts import (
@@ -31,7 +31,6 @@ from pinlib.present.review.text import (
     _message,
     _no_snapshot_text,
     _route_of,
-    _value,
 )
 
 _CSS = """\
@@ -193,7 +192,7 @@ class _Html:
             self.w(f"<{h}>Figures</{h}>", f'<dl class="figs" aria-label="Figures of {_e(label)}">')
             for name, f in g.figures.items():
                 self.w(f"<div><dt><code>{_e(name)}</code></dt>"
-                       f"<dd>{_e(_value(f.value, f.unit))}</dd></div>")
+                       f"<dd>{_e(figure_text(f))}</dd></div>")
             self.w("</dl>")
         if g.checks:
             self.w(f"<{h}>Checks</{h}>", "<table>",

@@ -8,7 +8,7 @@ import re
 
 from pinlib import __version__
 from pinlib.core import messages as M
-from pinlib.model.result import CAUTION, BusResult, Group
+from pinlib.model.result import CAUTION, BusResult, Group, figure_text
 from pinlib.present.review.draw import ReviewChart
 from pinlib.present.review.montecarlo import _MC_HEAD, _mc_cells, _mc_summary
 from pinlib.present.review.parts import (
@@ -30,7 +30,6 @@ from pinlib.present.review.text import (
     _margin,
     _message,
     _route_of,
-    _value,
 )
 
 # Every user-written text (titles, ids, descriptions, sources, part values, paths) goes
@@ -167,7 +166,7 @@ class _Markdown:
         if g.figures:
             self.w(f"{h} Figures", "")
             self.w(*_table(["Figure", "Value"],
-                           [[f"`{name}`", _m(_value(f.value, f.unit))]
+                           [[f"`{name}`", _m(figure_text(f))]
                             for name, f in g.figures.items()]))
         if g.checks:
             self.w(f"{h} Checks", "")
