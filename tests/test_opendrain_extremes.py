@@ -165,3 +165,16 @@ def test_an_unbounded_rp_max_is_said_in_words_everywhere(tmp_path):
     md = render_markdown(design, result)
     assert "no upper bound" in md and "∞" not in md
     _no_infinity(res)
+
+
+def test_a_pullup_inside_an_unbounded_window_passes_against_rp_min(tmp_path):
+    # derived: Cb 0 leaves Rp(max) unbounded; the auto pull-up 2 kΩ (tolerance 0 %)
+    # sits above Rp(min) (3.3 − 0.4)/3 mA = 966.7 Ω (UM10204 rev. 6 eq. 2), more than
+    # twice it: the window holds it and the margin is to Rp(min)
+    _, result = _zero_cb_result(tmp_path)
+    for c in result.buses[0].checks:
+        if c.id == "pullup-window":
+            assert c.status == "pass", c.message
+            assert c.limit == pytest.approx(966.7, abs=0.05)
+            assert c.margin == pytest.approx(2e3 / 966.67 - 1, rel=1e-4)
+            assert "at −0%" in c.message
