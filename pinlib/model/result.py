@@ -26,6 +26,8 @@ __all__ = [
     "check_min",
     "check_true",
     "margin_text",
+    "percent_text",
+    "MARGIN_SHOWN",
     "figure_text",
     "rule_of_thumb",
     "min_margin",
@@ -138,10 +140,31 @@ def margin_text(c: Check) -> str:
     if c.margin_unit is not None:
         text = format_si(abs(m), c.margin_unit)
         return ("−" if m < 0 else "+") + text
+    return percent_text(m)
+
+
+#: The largest relative margin written as a number, in percent: beyond it a margin reads
+#: as "> +999 %" or "< -999 %" ("-3286574 %" says nothing a reader can use; the value
+#: and the limit shown beside it say by how much, and the JSON keeps the number).
+MARGIN_SHOWN = 999
+
+
+def percent_text(m, decimals: int = 0) -> str:
+    """A relative margin (a ratio) as a signed percentage with ``decimals`` decimals:
+    ``+12 %``; beyond ±:data:`MARGIN_SHOWN` % ``> +999 %`` / ``< -999 %``; "—" where
+    it is None or not finite.  With no decimals a margin under 0.5 % keeps one
+    significant digit (never "-0 %" for a check that fails by a hair)."""
+    if m is None:
+        return "—"
+    m = float(m)
+    if not math.isfinite(m):
+        return "—"
     pct = m * 100
-    if pct != 0 and abs(pct) < 0.5:  # never "-0 %" for a check that fails by a hair
+    if abs(round(pct, decimals)) > MARGIN_SHOWN:
+        return f"< -{MARGIN_SHOWN} %" if pct < 0 else f"> +{MARGIN_SHOWN} %"
+    if decimals == 0 and pct != 0 and abs(pct) < 0.5:
         return f"{pct:+.1g} %"
-    return f"{pct:+.0f} %"
+    return f"{pct:+.{decimals}f} %"
 
 
 def figure_text(f: Figure) -> str:
