@@ -181,6 +181,16 @@ def test_refused_value_names_field_and_expected(lib_dirs):
     assert err.line == 11  # the line of c_in in the file
 
 
+@pytest.mark.parametrize("value", ["1e300 pF", "4k7", "-3 pF"])
+def test_refused_value_is_quoted_as_typed(lib_dirs, value):
+    # "1e300 pF" was quoted back as "1e288 F", "4k7" as "4.7 kF", "-3 pF" as "-3 pF"
+    _, team = lib_dirs
+    with pytest.raises(LibraryError) as info:
+        record_value(load(team), "child", "sda.c_in", value, "rev C")
+    assert info.value.value == value
+    assert f"(got '{value}')" in str(info.value) and "1e288" not in str(info.value)
+
+
 @pytest.mark.parametrize(("field", "match"), [
     ("sda.cin", "closest: c_in"), ("cs.c_in", "no such pin"), ("sda.function", "no recorded"),
     ("sda.edges", "list"), ("timing", "table"), ("timing.fmax", "f_max"),
