@@ -176,7 +176,8 @@ def sourced_parser(unit: str, lo: float | None = None, hi: float | None = None,
         field = _field_name(name)
         text, basis, source, typ = _split_table(raw, field)
         value = check(parse(text, unit, field=field), field, text)
-        typ_v = None if typ is None else parse(typ, unit, field=f"{field}.typ" if field else None)
+        typ_field = f"{field}.typ" if field else None
+        typ_v = None if typ is None else check(parse(typ, unit, field=typ_field), typ_field, typ)
         return Sourced(value, unit, str(text), basis, source, typ_v)
 
     return validate
