@@ -248,6 +248,29 @@ def test_against_snapshots_lists_what_moved_per_design(tmp_path, capsys, monkeyp
     assert rows[0]["changes"]
 
 
+def test_against_snapshots_wraps_to_the_terminal_and_keeps_lines_in_a_pipe(
+        tmp_path, capsys, monkeypatch):
+    # "    Changes against the snapshot saved <time>: status pass → warn" ran to 84
+    # characters on an 80-column terminal
+    monkeypatch.chdir(tmp_path)
+    a = _board(tmp_path, "a.toml")
+    _board(tmp_path, "b.toml")
+    assert main(["check", str(a), "--save"]) in (0, 1)
+    a.write_text(a.read_text(encoding="utf-8").replace('pullup = "4.7 kΩ"', 'pullup = "3.3 kΩ"'),
+                 encoding="utf-8")
+    capsys.readouterr()
+    monkeypatch.setenv("COLUMNS", "80")
+    main(["check", "a.toml", "b.toml", "--against-snapshots", "--jobs", "1"])
+    out = capsys.readouterr().out
+    assert "Changes against the snapshot saved" in out
+    assert max(len(ln) for ln in out.splitlines()) <= 80
+    monkeypatch.delenv("COLUMNS")
+    main(["check", "a.toml", "b.toml", "--against-snapshots", "--jobs", "1"])
+    piped = capsys.readouterr().out.splitlines()
+    head = next(ln for ln in piped if "Changes against the snapshot" in ln)
+    assert head.startswith("    Changes") and "status " in head  # one line, whole
+
+
 # ---------------------------------------------------------------- parts used-by
 def test_used_by_finds_direct_and_inherited_uses(tmp_path, capsys, monkeypatch):
     monkeypatch.chdir(tmp_path)

@@ -65,3 +65,47 @@ def test_a_command_imports_no_other_command():
     proc = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                           cwd=ROOT, timeout=60, check=True)
     assert proc.stdout.strip() == "['pinlib.cli.commands.check']"
+
+
+def _outcome(argv, capsys):
+    from pinlib.cli import main
+
+    try:
+        code = main(argv)
+    except SystemExit as exc:
+        code = exc.code
+    captured = capsys.readouterr()
+    return code, captured.out, captured.err
+
+
+DESIGN = str(ROOT / "tests" / "data" / "spi-route.toml")
+
+
+@pytest.mark.parametrize(("before", "option", "value", "after"), [
+    (["measured", DESIGN, "--bus", "b", "--probe", "10pF"], "--rise", "-5ns", []),
+    (["measured", DESIGN, "--bus", "b", "--rise", "5ns"], "--probe", "-1pF", []),
+    (["measured", DESIGN, "--bus", "b", "--rise", "5ns", "--probe", "1pF"], "--levels",
+     "-10,90", []),
+    (["check", DESIGN], "--threshold", "-5%", []),
+    (["report", DESIGN, "--md", "x.md"], "--threshold", "-5%", []),
+    (["swap", DESIGN, "--part", "U1=U2"], "--threshold", "-5%", []),
+    (["check", DESIGN], "--seed", "-5", []),
+    (["check", DESIGN], "--monte-carlo", "-5", []),
+    (["parts", "list"], "--supply", "-3.3V", []),
+    (["parts", "record", "t-target", "pins.sda.c_in", "3pF", "--source", "x"], "--typ",
+     "-3pF", ["--library", "/nonexistent-folder"]),
+])
+def test_a_negative_quantity_reaches_the_option_as_with_equals(before, option, value, after,
+                                                               capsys):
+    # "--rise -5ns" was taken by argparse as an option ("expected one argument"); it
+    # now reaches the option as "--rise=-5ns" does, and pinlib's own error
+    split = _outcome([*before, option, value, *after], capsys)
+    joined = _outcome([*before, f"{option}={value}", *after], capsys)
+    assert "expected one argument" not in split[2]
+    assert split == joined
+
+
+def test_a_negative_value_reaches_a_positional():
+    args = build_parser().parse_args(["parts", "record", "p", "pins.sda.c_in", "-3pF",
+                                      "--source", "x"])
+    assert args.value == "-3pF"

@@ -2327,8 +2327,10 @@ def _(env):
         'lines.sclk = { sections = [{ length = "0.001 mm", capacitance = "1.1 pF/cm", '
         'delay = "58 ps/cm" }, { part = "twisted-pair-cable", length = "1000 m" }] }')
     err = _fails(lambda e: _check(e.design(body)), env)
-    assert err.field == "bus.s.lines.sclk"
-    assert "shortest section" in err.hint
+    # the stub's own length is named (it was the line, "bus.s.lines.sclk"), with 0 (a
+    # point) as the way out
+    assert err.field == "bus[0].lines.sclk.sections[0].length"
+    assert "shortest section" in err.hint and "0 for a point" in err.expected
     return err
 
 

@@ -762,6 +762,26 @@ def test_margin_text_relative_and_absolute():
     assert margin_text(check_max("x", 300e-9, 300e-9, "s", "s", "m")) == "+0 %"
 
 
+def test_margin_text_beyond_a_thousand_percent_says_only_beyond():
+    from pinlib.model.result import check_max, check_min, margin_text, percent_text
+
+    # derived: (100 mV − 3.29 kV) / 100 mV = −3286574 %: the value and limit beside
+    # the margin say by how much, the JSON keeps the number
+    huge = check_max("x", 3286.674, 0.1, "V", "s", "m")
+    assert huge.margin == pytest.approx(-32865.74)
+    assert margin_text(huge) == "< -999 %"
+    assert huge.to_json()["margin"] == pytest.approx(-32865.74)
+    # derived: (1 ms − 100 ns) / 100 ns = +999900 %
+    assert margin_text(check_min("x", 1e-3, 100e-9, "s", "s", "m")) == "> +999 %"
+    # derived: (300 − 3296) / 300 = −998.7 %, shown whole; −999.6 % would round to
+    # −1000 % and is beyond
+    assert margin_text(check_max("x", 3296.0, 300.0, "s", "s", "m")) == "-999 %"
+    assert margin_text(check_max("x", 3298.8, 300.0, "s", "s", "m")) == "< -999 %"
+    # the same rule where a margin is written with one decimal (candidates, Monte Carlo)
+    assert percent_text(-0.123, 1) == "-12.3 %" and percent_text(12.0, 1) == "> +999 %"
+    assert percent_text(float("inf")) == "—" and percent_text(None) == "—"
+
+
 # --------------------------------------------------------------------------- issue 13.10
 
 

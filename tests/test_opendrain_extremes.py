@@ -118,3 +118,63 @@ def test_i2c_has_no_minimum_clock(tmp_path):
     # published: UM10204 rev. 6 table 10: fSCL min 0 Hz
     chk = bus_result(tmp_path, one_bus(more='clock = "1 kHz"')).check("scl-frequency")
     assert chk.status == "pass" and chk.limit == 400e3
+
+
+# --------------------------------------------------------------------- Rp(max) unbounded
+
+
+def _zero_cb_result(tmp_path):
+    """A bus whose pins load it with nothing (test data, invented: the t- parts with
+    c_in 0 pF) and no trace: Cb is 0, and UM10204 eq. 1 bounds the pull-up by nothing."""
+    from test_opendrain import HEAD, PARTS
+
+    from pinlib.engines.dispatch import check_design
+    from pinlib.model.design import load_design
+
+    lib = tmp_path / "lib"
+    lib.mkdir()
+    for name in ("t-ctrl-3v3", "t-target"):
+        text = (PARTS / f"{name}.toml").read_text(encoding="utf-8")
+        text = text.replace('c_in = "10 pF"', 'c_in = "0 pF"').replace(
+            f'id = "{name}"', f'id = "z{name}"')
+        (lib / f"z{name}.toml").write_text(text, encoding="utf-8")
+    path = tmp_path / "d.toml"
+    path.write_text(HEAD + one_bus(devices=['{ ref = "U1", part = "zt-ctrl-3v3", '
+                                            'role = "controller" }',
+                                            '{ ref = "U2", part = "zt-target" }']),
+                    encoding="utf-8")
+    design = load_design(path, library_folders=[lib, PARTS])
+    return design, check_design(design)
+
+
+def test_an_unbounded_rp_max_is_said_in_words_everywhere(tmp_path):
+    from pinlib.present.report import bus_line
+    from pinlib.present.review import render_markdown
+
+    design, result = _zero_cb_result(tmp_path)
+    res = result.buses[0]
+    assert fig(res, "bus_capacitance") == 0.0
+    f = res.figures["rp_max"]
+    assert f.value is None and f.reason and "no upper bound" in f.reason
+    js = res.to_json()["figures"]["rp_max"]
+    assert js["value"] is None and js["reason"] == f.reason
+    assert "no upper bound" in bus_line(res) and "∞" not in bus_line(res)
+    lines = detail_lines(result, 80)
+    row = next(ln for ln in lines if ln.strip().startswith("Rp(max)"))
+    assert "no upper bound" in row and "∞" not in row
+    md = render_markdown(design, result)
+    assert "no upper bound" in md and "∞" not in md
+    _no_infinity(res)
+
+
+def test_a_pullup_inside_an_unbounded_window_passes_against_rp_min(tmp_path):
+    # derived: Cb 0 leaves Rp(max) unbounded; the auto pull-up 2 kΩ (tolerance 0 %)
+    # sits above Rp(min) (3.3 − 0.4)/3 mA = 966.7 Ω (UM10204 rev. 6 eq. 2), more than
+    # twice it: the window holds it and the margin is to Rp(min)
+    _, result = _zero_cb_result(tmp_path)
+    for c in result.buses[0].checks:
+        if c.id == "pullup-window":
+            assert c.status == "pass", c.message
+            assert c.limit == pytest.approx(966.7, abs=0.05)
+            assert c.margin == pytest.approx(2e3 / 966.67 - 1, rel=1e-4)
+            assert "at −0%" in c.message

@@ -179,6 +179,38 @@ devices = [
     assert "pinlib: warning: odd-target:" in err and "field 'pins.sda.v_il'" in err
 
 
+def test_check_warnings_wrap_to_the_terminal_and_stay_whole_in_a_pipe(team, tmp_path, capsys,
+                                                                      monkeypatch):
+    # a warning about an implausible value ran to ~200 characters on a terminal
+    (team / "odd.toml").write_text(TARGET.format(c_in="8 pF", v_il="-0.3 V"), encoding="utf-8")
+    design = tmp_path / "d.toml"
+    design.write_text(f"""\
+format = "pinlib.design/1"
+title = "implausible part (invented)"
+library = ["{team.as_posix()}"]
+
+[[bus]]
+id = "b"
+protocol = "i2c"
+supply = "3.3 V"
+trace = {{ length = "5 cm", capacitance = "1 pF/cm" }}
+devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
+  {{ ref = "U2", part = "odd-target" }},
+]
+""", encoding="utf-8")
+    monkeypatch.delenv("COLUMNS", raising=False)
+    main(["check", str(design)])
+    piped = capsys.readouterr().err.splitlines()
+    (line,) = [ln for ln in piped if "pins.sda.v_il" in ln]
+    assert line.startswith("pinlib: warning: odd-target:") and len(line) > 80
+    monkeypatch.setenv("COLUMNS", "80")
+    main(["check", str(design)])
+    err = capsys.readouterr().err
+    assert "pinlib: warning: odd-target:" in err
+    assert max(len(ln) for ln in err.splitlines()) <= 80
+
+
 def test_relative_levels_are_tried_at_both_supply_ends():
     # 2 V as v_il is 0.36 VDD at 5.5 V but 1.18 VDD at 1.7 V (above 0.8 VDD)
     v = Sourced(2.0, "V", "2 V")

@@ -181,6 +181,29 @@ def test_refused_value_names_field_and_expected(lib_dirs):
     assert err.line == 11  # the line of c_in in the file
 
 
+@pytest.mark.parametrize("value", ["1e300 pF", "4k7", "-3 pF"])
+def test_refused_value_is_quoted_as_typed(lib_dirs, value):
+    # "1e300 pF" was quoted back as "1e288 F", "4k7" as "4.7 kF", "-3 pF" as "-3 pF"
+    _, team = lib_dirs
+    with pytest.raises(LibraryError) as info:
+        record_value(load(team), "child", "sda.c_in", value, "rev C")
+    assert info.value.value == value
+    assert f"(got '{value}')" in str(info.value) and "1e288" not in str(info.value)
+
+
+@pytest.mark.parametrize(("typ", "match"), [("-3 pF", "negative"),
+                                            ("1e300 pF", "plausible range")])
+def test_a_typical_value_is_held_to_the_limits_of_its_field(lib_dirs, typ, match):
+    # a typical c_in of -3 pF was recorded without a word
+    _, team = lib_dirs
+    path = team / "child.toml"
+    before = path.read_bytes()
+    with pytest.raises(LibraryError, match=match) as info:
+        record_value(load(team), "child", "sda.c_in", "3 pF", "rev C", typ=typ)
+    assert info.value.value == typ and "1e288" not in str(info.value)
+    assert path.read_bytes() == before
+
+
 @pytest.mark.parametrize(("field", "match"), [
     ("sda.cin", "closest: c_in"), ("cs.c_in", "no such pin"), ("sda.function", "no recorded"),
     ("sda.edges", "list"), ("timing", "table"), ("timing.fmax", "f_max"),

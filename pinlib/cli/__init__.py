@@ -11,6 +11,7 @@ from __future__ import annotations
 import argparse
 import gc
 import importlib
+import re
 import sys
 
 from pinlib import __version__
@@ -51,8 +52,25 @@ the real board. Standards, local codes and licensed practice prevail.
 """
 
 
+#: A negative value: a minus and a digit, or a minus, a point and a digit.
+_NEGATIVE_VALUE = re.compile(r"^-\.?\d")
+
+
 class _Parser(argparse.ArgumentParser):
-    """argparse's parser, its usage errors wrapped to a terminal as pinlib's own."""
+    """argparse's parser, its usage errors wrapped to a terminal as pinlib's own.
+
+    An argument that starts with a minus and a digit ("-5ns", "-10,90", "-.5 V") is a
+    value, never an option: argparse takes only a bare number ("-5") for one, so
+    ``--rise -5ns`` gave "expected one argument" where ``--rise=-5ns`` reaches pinlib's
+    own error.  No pinlib option is spelt with a digit, so every option's value and
+    every positional (``parts record ID FIELD -3pF``) reads a negative quantity the
+    same way (argparse reads the pattern from this attribute; tests/test_cli_parser.py
+    holds the two spellings to one outcome).
+    """
+
+    def __init__(self, *args, **kwargs):
+        super().__init__(*args, **kwargs)
+        self._negative_number_matcher = _NEGATIVE_VALUE
 
     def error(self, message: str):
         from pinlib.present.terminal import fitted

@@ -107,8 +107,10 @@ def _located(err: PinlibError, bus: Bus, design: Design) -> PinlibError:
         field = dotted(bus.loc) or None
         hint = M.MET_EVALUATING_BUS.format(bus=bus.id, field=err.field or "?")
         hint = f"{err.hint}; {hint}" if err.hint else hint
+    loc = getattr(err, "loc", None)  # a place the engine names by its key path
+    line = (line_of(index, loc) if loc else None) or bus_line
     return type(err)(err.problem, file=str(design.path) if design.path else None,
-                     line=bus_line, field=field, value=err.value, expected=err.expected,
+                     line=line, field=field, value=err.value, expected=err.expected,
                      hint=hint)
 
 

@@ -160,12 +160,13 @@ def sourced_parser(unit: str, lo: float | None = None, hi: float | None = None,
     pass as 4.7 kF); values outside them are refused with the range in the message.
     """
 
-    def check(x, field):
+    def check(x, field, text):
+        # the value is quoted as written ("1e300 pF", not its SI form "1e288 F")
         if not signed and x < 0:
-            raise UnitError(M.NEGATIVE_VALUE, field=field, value=format_si(x, unit),
+            raise UnitError(M.NEGATIVE_VALUE, field=field, value=str(text),
                             expected="zero or more")
         if (lo is not None and x < lo) or (hi is not None and x > hi):
-            raise UnitError(M.OUTSIDE_RANGE, field=field, value=format_si(x, unit),
+            raise UnitError(M.OUTSIDE_RANGE, field=field, value=str(text),
                             expected=f"between {format_si(lo, unit)} and {format_si(hi, unit)}")
         return x
 
@@ -174,8 +175,9 @@ def sourced_parser(unit: str, lo: float | None = None, hi: float | None = None,
             return raw
         field = _field_name(name)
         text, basis, source, typ = _split_table(raw, field)
-        value = check(parse(text, unit, field=field), field)
-        typ_v = None if typ is None else parse(typ, unit, field=f"{field}.typ" if field else None)
+        value = check(parse(text, unit, field=field), field, text)
+        typ_field = f"{field}.typ" if field else None
+        typ_v = None if typ is None else check(parse(typ, unit, field=typ_field), typ_field, typ)
         return Sourced(value, unit, str(text), basis, source, typ_v)
 
     return validate

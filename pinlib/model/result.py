@@ -26,6 +26,9 @@ __all__ = [
     "check_min",
     "check_true",
     "margin_text",
+    "percent_text",
+    "MARGIN_SHOWN",
+    "figure_text",
     "rule_of_thumb",
     "min_margin",
     "max_margin",
@@ -61,17 +64,22 @@ def worst(statuses) -> str:
 
 @value_class
 class Figure:
-    """A computed value and its unit."""
+    """A computed value and its unit; ``reason`` says in words why a value that is None
+    does not exist as a number (an unbounded Rp(max): "no upper bound (Cb is 0)")."""
 
     value: Any
     unit: str = ""
+    reason: str | None = None
 
     def to_json(self) -> dict:
         v = self.value
-        if isinstance(v, bool) or v is None or isinstance(v, str):
-            return {"value": v, "unit": self.unit}
-        v = float(v)
-        return {"value": v if math.isfinite(v) else None, "unit": self.unit}
+        if not (isinstance(v, bool) or v is None or isinstance(v, str)):
+            v = float(v)
+            v = v if math.isfinite(v) else None
+        out = {"value": v, "unit": self.unit}
+        if self.reason:
+            out["reason"] = self.reason
+        return out
 
 
 @value_class
@@ -139,10 +147,41 @@ def margin_text(c: Check) -> str:
     if c.margin_unit is not None:
         text = format_si(abs(m), c.margin_unit)
         return ("−" if m < 0 else "+") + text
+    return percent_text(m)
+
+
+#: The largest relative margin written as a number, in percent: beyond it a margin reads
+#: as "> +999 %" or "< -999 %" ("-3286574 %" says nothing a reader can use; the value
+#: and the limit shown beside it say by how much, and the JSON keeps the number).
+MARGIN_SHOWN = 999
+
+
+def percent_text(m, decimals: int = 0) -> str:
+    """A relative margin (a ratio) as a signed percentage with ``decimals`` decimals:
+    ``+12 %``; beyond ±:data:`MARGIN_SHOWN` % ``> +999 %`` / ``< -999 %``; "—" where
+    it is None or not finite.  With no decimals a margin under 0.5 % keeps one
+    significant digit (never "-0 %" for a check that fails by a hair)."""
+    if m is None:
+        return "—"
+    m = float(m)
+    if not math.isfinite(m):
+        return "—"
     pct = m * 100
-    if pct != 0 and abs(pct) < 0.5:  # never "-0 %" for a check that fails by a hair
+    if abs(round(pct, decimals)) > MARGIN_SHOWN:
+        return f"< -{MARGIN_SHOWN} %" if pct < 0 else f"> +{MARGIN_SHOWN} %"
+    if decimals == 0 and pct != 0 and abs(pct) < 0.5:
         return f"{pct:+.1g} %"
-    return f"{pct:+.0f} %"
+    return f"{pct:+.{decimals}f} %"
+
+
+def figure_text(f: Figure) -> str:
+    """A figure as text: its value with its unit (:func:`pinlib.core.quantity.format_value`),
+    or, where it has no number, its reason in words ("no upper bound (Cb is 0)")."""
+    from pinlib.core.quantity import format_value
+
+    if f.value is None and f.reason:
+        return f.reason
+    return format_value(f.value, f.unit)
 
 
 def json_number(v):
@@ -258,8 +297,8 @@ class Group:
     checks: list[Check] = field(default_factory=list)
     notes: list[str] = field(default_factory=list)
 
-    def figure(self, name: str, value, unit: str = "") -> None:
-        self.figures[name] = Figure(value, unit)
+    def figure(self, name: str, value, unit: str = "", reason: str | None = None) -> None:
+        self.figures[name] = Figure(value, unit, reason)
 
     def add(self, check: Check) -> Check:
         self.checks.append(check)

@@ -21,13 +21,24 @@ def summary_line(s, width: int) -> str:
     return head + f"{c['pass']} pass, {c['warn']} warn, {c['fail']} fail — {s.title}"
 
 
-def _snapshot_lines(s) -> list[str]:
+def _snapshot_lines(s, cols: int | None) -> list[str]:
+    """A design's snapshot changes indented under its line, each wrapped to ``cols``
+    (None: whole, one line each, for a file or a pipe)."""
     if s.snapshot is None or s.error is not None:
         return []
     if s.snapshot == "compared":
-        return ["    " + line if line else "" for line in s.changes_text.rstrip().splitlines()]
-    out = ["    no snapshot to compare with (pinlib check DESIGN --save keeps one)"]
-    out += [f"    warning: {n}" for n in s.notes]
+        lines = ["    " + line if line else "" for line in s.changes_text.rstrip().splitlines()]
+    else:
+        lines = ["    no snapshot to compare with (pinlib check DESIGN --save keeps one)"]
+        lines += [f"    warning: {n}" for n in s.notes]
+    if cols is None:
+        return lines
+    from pinlib.present.terminal import wrap
+
+    out = []
+    for line in lines:
+        body = line.lstrip(" ").replace(" → ", "\u00a0→\u00a0")  # "pass → warn" stays whole
+        out += wrap(body, cols, line[:len(line) - len(body)]) if body else [""]
     return out
 
 
@@ -44,7 +55,7 @@ def format_many(summaries, cols: int | None = None) -> str:
         if cols is not None and len(line) > cols:
             line = line[:cols - 1].rstrip() + "…"
         out.append(line)
-        out += _snapshot_lines(s)
+        out += _snapshot_lines(s, cols)
     counts = {k: sum(1 for s in summaries if s.status == k)
               for k in ("pass", "warn", "fail", "error")}
     n = len(summaries)

@@ -20,7 +20,7 @@ import math
 import re
 
 from pinlib.core.labels import check_label, humanize
-from pinlib.model.result import BusResult, Check, DesignResult, margin_text
+from pinlib.model.result import BusResult, Check, DesignResult, figure_text, margin_text
 from pinlib.present.detail import detail_lines
 from pinlib.present.terminal import DEFAULT_WIDTH, status_word, wrap
 from pinlib.present.values import counts, format_value, with_fix
@@ -74,9 +74,9 @@ def problem_line(bus: BusResult, where: str | None, signal: str | None, c: Check
 
 def _fig_text(group, name: str) -> str | None:
     f = group.figures.get(name)
-    if f is None or f.value is None:
+    if f is None or (f.value is None and not f.reason):
         return None
-    return format_value(f.value, f.unit)
+    return figure_text(f)
 
 
 def _open_drain(group) -> str:

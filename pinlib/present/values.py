@@ -8,7 +8,7 @@ from collections.abc import Mapping
 
 from pinlib.core.labels import figure_label, shown_figures
 from pinlib.core.quantity import format_value
-from pinlib.model.result import Check, DesignResult, Figure
+from pinlib.model.result import Check, DesignResult, Figure, figure_text
 
 __all__ = ["format_value", "counts", "with_fix", "figure_cells"]
 
@@ -21,7 +21,7 @@ def figure_cells(figures: Mapping[str, Figure]) -> list[tuple[str, str]]:
     """A group's figures as people read them: (label, value with its unit) in table
     order, each quantity once (:func:`pinlib.core.labels.shown_figures`: a line's copy of
     the bus figure, the pull-up that is the resistor, shown once); ids stay in the JSON."""
-    return [(figure_label(n), format_value(figures[n].value, figures[n].unit))
+    return [(figure_label(n), figure_text(figures[n]))
             for n in shown_figures(figures, same=_same)]
 
 

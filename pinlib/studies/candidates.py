@@ -46,7 +46,7 @@ from pinlib.engines import opendrain as od
 from pinlib.engines.opendrain import batch as ob
 from pinlib.library.schema import CATEGORIES, Part
 from pinlib.model.design import Bus, Design, Device
-from pinlib.model.result import STATUSES, BusResult, json_number, worst
+from pinlib.model.result import STATUSES, BusResult, json_number, percent_text, worst
 from pinlib.studies.compare import can_serve, positions
 from pinlib.studies.ppcandidates import batched_note, evaluate_batched
 
@@ -233,8 +233,7 @@ class Ranking:
                                 wc["id"], wc.get("subject") if not wc.get("line") else None) if x)
                 row = [str(i), c.part + (" *" if c.current else ""),
                        c.status.upper(),
-                       "—" if c.worst_margin is None or not math.isfinite(c.worst_margin)
-                       else f"{c.worst_margin * 100:+.1f} %", by if c.status != "error" else
+                       percent_text(c.worst_margin, 1), by if c.status != "error" else
                        (c.error or "")]
                 for b, n, unit in fig_cols:
                     v = c.figures.get(b, {}).get(n)

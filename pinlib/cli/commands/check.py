@@ -187,8 +187,8 @@ def _run_one(args) -> int:
     design = load_design(args.design, library_folders=args.library)
     problems = design.library.problems  # files that could not be read, parts asked for
     if problems:
-        print("pinlib: warning: " + M.LIBRARY_HAS_PROBLEMS.format(n=len(problems))
-              + "; " + M.FIRST_PROBLEM.format(message=problems[0].message), file=sys.stderr)
+        _warn("pinlib: warning: " + M.LIBRARY_HAS_PROBLEMS.format(n=len(problems))
+              + "; " + M.FIRST_PROBLEM.format(message=problems[0].message))
     _warn_implausible(design)
     if getattr(args, "seed", None) is not None and getattr(args, "monte_carlo", None) is None:
         from pinlib.core.errors import InputError
@@ -206,8 +206,8 @@ def _run_one(args) -> int:
         damaged: list = []
         changes = compare_with_snapshot(design, result, threshold, damaged=damaged)
         for err in damaged:  # named, then ignored: the check itself still runs
-            print(f"pinlib: warning: {err.message}; "
-                  + M.SNAPSHOT_IGNORED.format(design=args.design), file=sys.stderr)
+            _warn(f"pinlib: warning: {err.message}; "
+                  + M.SNAPSHOT_IGNORED.format(design=args.design))
     extra = _what_if(design, args, result)
     if args.json:
         out = result.to_json()
@@ -275,7 +275,14 @@ def _warn_implausible(design) -> None:
                     ids[s.part_id] = None
     for pid in ids:
         for w in part_warnings(design.library.get(pid), design.library):
-            print(f"pinlib: warning: {pid}: " + w.message, file=sys.stderr)
+            _warn(f"pinlib: warning: {pid}: " + w.message)
+
+
+def _warn(line: str) -> None:
+    """A warning on standard error: wrapped to a terminal, one line in a file or a pipe."""
+    from pinlib.present.terminal import fitted
+
+    print(fitted(line, sys.stderr), file=sys.stderr)
 
 
 def _what_if(design, args, result) -> dict:

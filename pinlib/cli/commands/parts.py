@@ -199,8 +199,7 @@ def _load(args, extra=()):
 
 def _warn_problems(lib) -> None:
     if lib.problems:
-        print("pinlib: warning: " + M.LIBRARY_HAS_PROBLEMS.format(n=len(lib.problems)),
-              file=sys.stderr)
+        _warn("pinlib: warning: " + M.LIBRARY_HAS_PROBLEMS.format(n=len(lib.problems)))
 
 
 def _choice(value, choices, field):
@@ -539,8 +538,15 @@ def _warn_implausible(lib, pid, field=None) -> list:
 
     found = [w for w in part_warnings(lib.get(pid), lib) if field is None or w.field == field]
     for w in found:
-        print("pinlib: warning: " + w.message, file=sys.stderr)
+        _warn("pinlib: warning: " + w.message)
     return found
+
+
+def _warn(line: str) -> None:
+    """A warning on standard error: wrapped to a terminal, one line in a file or a pipe."""
+    from pinlib.present.terminal import fitted
+
+    print(fitted(line, sys.stderr), file=sys.stderr)
 
 
 # --- schema ----------------------------------------------------------------------------

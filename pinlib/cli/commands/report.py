@@ -151,6 +151,7 @@ def run(args) -> int:
     from pinlib.engines.dispatch import check_design
     from pinlib.model.design import load_design
     from pinlib.present.review import build_review
+    from pinlib.present.terminal import fitted
     from pinlib.studies.compare import DEFAULT_THRESHOLD, compare_with_snapshot
 
     if args.seed is not None and args.monte_carlo is None:
@@ -169,8 +170,8 @@ def run(args) -> int:
     damaged: list = []
     changes = compare_with_snapshot(design, result, threshold, damaged=damaged)
     for err in damaged:  # named, then ignored: the report is written without changes
-        print(f"pinlib: warning: {err.message}; "
-              + M.SNAPSHOT_IGNORED.format(design=args.design), file=sys.stderr)
+        print(fitted(f"pinlib: warning: {err.message}; "
+                     + M.SNAPSHOT_IGNORED.format(design=args.design), sys.stderr), file=sys.stderr)
     mc = None
     if args.monte_carlo is not None:
         mc = _monte_carlo(design, args.monte_carlo, args.seed, result)
@@ -208,6 +209,6 @@ def run(args) -> int:
     print(fitted(f"wrote {written[0]}{extra} ({drawn} charts; design {result.status}){gone}",
                  sys.stderr), file=sys.stderr)
     for c in missing:
-        print("pinlib: note: " + M.CHART_NOT_DRAWN_WITH_TITLE.format(title=c.title, error=c.error),
-              file=sys.stderr)
+        print(fitted("pinlib: note: " + M.CHART_NOT_DRAWN_WITH_TITLE.format(
+            title=c.title, error=c.error), sys.stderr), file=sys.stderr)
     return result.exit_code()

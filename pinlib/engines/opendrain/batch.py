@@ -130,7 +130,9 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     # the end nearer its bound, by pullup.pullup_margins' two ratios (its inputs are
     # the gathering's): Rp(min) below (>=), Rp(max) above (<=)
     m_lo, m_hi = rp_lo / ln.rp_min - 1.0, 1.0 - rp_hi / ln.rp_max
-    low = m_lo <= m_hi
+    # an unbounded Rp(max) (Cb 0) is never the nearer bound: against it the margin
+    # would be inf/inf
+    low = (m_lo <= m_hi) | np.isinf(ln.rp_max)
     out.pick("pullup-window", up, [(np.where(low, rp_lo, rp_hi),
                                     np.where(low, ln.rp_min, ln.rp_max),
                                     np.where(low, -1.0, 1.0), None)], warn, "Ω").basis = \

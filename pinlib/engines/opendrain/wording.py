@@ -178,7 +178,7 @@ def _window(w: Words, ln: LineInputs, r_eff: float, rp_lo: float) -> Check:
                     f"{up} pull-up {shown} at −{tol:.0%}: {_f(rp_lo, 'Ω')}; "
                     f"{reason}", subject=up, details=details, reason=reason)
     else:
-        sign = "−" if m_lo <= m_hi else "+"
+        sign = "−" if m_lo <= m_hi or not math.isfinite(ln.rp_max) else "+"
         chk = make(bc, src, f"{up} pull-up {shown} at {sign}{tol:.0%}: {_f(value, 'Ω')} "
                    f"against the window {window}", subject=up, details=details)
     if chk.status == "fail":

@@ -69,9 +69,17 @@ def segment(ctx, seg_in: SegmentInputs, sb) -> Group:
 _FALL_FIGURES = ("fall_time", "fall_time_sda", "fall_time_scl")
 
 
+#: Why Rp(max) is none where Cb is 0: UM10204 eq. 1, tr/(k·Cb), bounds nothing.
+RP_MAX_UNBOUNDED = "no upper bound (Cb is 0)"
+
+
 def _unbounded(grp: Group) -> None:
     """An infinite fall time, and the effective clock worked out from it (0 Hz), are
-    none: a line that never falls has neither."""
+    none: a line that never falls has neither.  An infinite Rp(max) (Cb is 0) is none,
+    with its reason in words."""
+    f = grp.figures.get("rp_max")
+    if f is not None and f.value is not None and not math.isfinite(f.value):
+        grp.figure("rp_max", None, f.unit, RP_MAX_UNBOUNDED)
     for name in _FALL_FIGURES:
         f = grp.figures.get(name)
         if f is not None and f.value is not None and not math.isfinite(f.value):

@@ -2,11 +2,14 @@
 
 from __future__ import annotations
 
+import math
 import warnings
 from collections.abc import Sequence
 
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError
+from pinlib.core.quantity import format_si
+from pinlib.core.tomlfile import dotted
 from pinlib.core.valueclass import value_class
 from pinlib.engines import memo
 from pinlib.engines.pushline.analysis import LineAnalysis, _figures_of, _fmt, _others
@@ -21,7 +24,7 @@ from pinlib.engines.pushline.rules import (
 from pinlib.engines.pushline.sections import line_model, stretches_of
 from pinlib.engines.pushline.sichecks import _si_checks
 from pinlib.engines.pushline.termination import _solve_cases, _termination_check
-from pinlib.engines.pushline.waves import _TooManySteps
+from pinlib.engines.pushline.waves import MAX_TIME_STEPS, _TooManySteps
 from pinlib.engines.readout import explained
 from pinlib.model.design import Line
 from pinlib.model.result import Check, LineResult, check_max, rule_of_thumb
@@ -134,14 +137,46 @@ def _analyse_line(signal, line, drivers, loads, receivers, clock, clock_line, wa
             a = _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line,
                          warn_margin)
         except _TooManySteps as exc:
-            where = f"bus.{bus_id}.lines.{signal}" if bus_id else f"lines.{signal}"
-            raise InputError(exc.problem, field=where, value=exc.value,
-                             hint=exc.hint) from None
+            raise _steps_error(exc, line, signal, bus_id) from None
     for w in caught:
         text = str(w.message)
         if text not in res.notes:
             res.notes.append(text)
     return a
+
+
+def _steps_error(exc: _TooManySteps, line: Line, signal: str, bus_id) -> InputError:
+    """The error of a record too long to solve.  Where a section's delay set the step (a
+    1 µm stub beside centimetres of trace: the step divides the shortest delay), it names
+    that section's length in the design file, 0 (a point, as a 0 cm stub is) as the way
+    out, and the length below which this record alone needs too many steps (a longer
+    record of another edge may need more); else the line."""
+    stretches = line_stretches(line)
+    timed = [(s.td, i) for i, s in enumerate(stretches) if s.td > 0]
+    td, i = min(timed, default=(math.nan, -1))
+    loc = line.sections[i].loc if 0 <= i < len(line.sections) else ()
+    if loc and td <= exc.dt * (1 + 1e-9):  # the section's delay is the step
+        s = line.sections[i]
+        # below this length the delay, the step, is under the record over MAX_TIME_STEPS
+        shortest = _round_up(s.length * (exc.t_end / MAX_TIME_STEPS) / td)
+        err = InputError(
+            exc.problem, field=dotted(loc + ("length",)),
+            value=f"{format_si(s.length, 'm')}, a delay of {format_si(td, 's')} as the step "
+                  f"over {format_si(exc.t_end, 's')}",
+            expected="0 for a point (its capacitance lumped at its two ends, as a stub far "
+                     f"shorter than the edge is), or more than {format_si(shortest, 'm')} "
+                     "(the least for this edge's record; another edge may need more)",
+            hint="the solver's step divides the shortest section's delay")
+        err.loc = loc
+        return err
+    where = f"bus.{bus_id}.lines.{signal}" if bus_id else f"lines.{signal}"
+    return InputError(exc.problem, field=where, value=exc.value, hint=exc.hint)
+
+
+def _round_up(x: float) -> float:
+    """``x`` rounded up to two significant digits (a length to write). [m]"""
+    scale = 10.0 ** (math.floor(math.log10(x)) - 1)
+    return math.ceil(x / scale * (1 - 1e-12)) * scale
 
 
 def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, warn_margin):

@@ -87,7 +87,11 @@ class EdgeWave:
 
 
 class _TooManySteps(InputError):
-    """A record longer than :data:`MAX_TIME_STEPS`; :func:`analyse_line` names the line."""
+    """A record longer than :data:`MAX_TIME_STEPS`; :func:`analyse_line` names the line,
+    or the section whose delay set the step (``t_end`` and ``dt``: the record and its
+    step, NaN where there is no finite record). [s]"""
+
+    t_end = dt = math.nan
 
 
 def _grid(t_end: float, dt: float) -> np.ndarray:
@@ -98,11 +102,13 @@ def _grid(t_end: float, dt: float) -> np.ndarray:
             hint="give each section a geometry its method gives an impedance for, or a "
                  "capacitance and delay per length")
     if not steps <= MAX_TIME_STEPS:  # checked before anything is allocated
-        raise _TooManySteps(
+        exc = _TooManySteps(
             M.TOO_MANY_TIME_STEPS.format(steps=f"{steps:.3g}", limit=f"{MAX_TIME_STEPS:,}"),
             value=f"{format_si(t_end, 's')} in steps of {format_si(dt, 's')}",
             hint="the step divides the shortest section delay: merge a very short section "
                  "into its neighbour (or drop it), or shorten the longest section")
+        exc.t_end, exc.dt = t_end, dt
+        raise exc
     n = int(math.ceil(steps))
     return np.arange(n + 1) * dt
 

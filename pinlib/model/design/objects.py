@@ -35,6 +35,9 @@ class Section:
     delay: float | None = None        # s/m
     impedance: float | None = None    # Ω, from a cable class
     part_id: str | None = None
+    #: where the design file writes it (``("bus", 0, "lines", "sclk", "route", 1)``): an
+    #: error about the section names it; no part of its value (equality, hash)
+    loc: tuple = field(default=(), compare=False, repr=False)
 
 
 @value_class(frozen=True)

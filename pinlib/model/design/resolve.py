@@ -105,12 +105,12 @@ class _Resolver:
             if t.geometry not in self.checked:
                 _check_impedance(geometries[t.geometry], self.err)
                 self.checked.add(t.geometry)
-            return (Section(t.length, geometries[t.geometry]),)
+            return (Section(t.length, geometries[t.geometry], loc=tuple(loc)),)
         if t.capacitance is None:
             raise err(M.TRACE_NEEDS_GEOMETRY, loc + ("geometry",),
                       expected="geometry = \"NAME\" or capacitance = "
                       "\"0.8 pF/cm\"")
-        return (Section(t.length, None, t.capacitance, t.delay),)
+        return (Section(t.length, None, t.capacitance, t.delay, loc=tuple(loc)),)
 
     def _cable_section(self, t: RawTrace | RawSection, loc) -> Section:
         cable = self.part_of(t.part, loc + ("part",))
@@ -119,7 +119,7 @@ class _Resolver:
         return Section(t.length, None, cable.line.capacitance.value,
                        cable.line.delay.value if cable.line.delay else None,
                        cable.line.impedance.value if cable.line.impedance else None,
-                       t.part)
+                       t.part, loc=tuple(loc))
 
     def cables(self, items, loc) -> tuple[Cable, ...]:
         out = []

@@ -4,6 +4,7 @@ run's summary sentences and the histograms of the checks with the lowest pass fr
 
 from __future__ import annotations
 
+from pinlib.model.result import percent_text
 from pinlib.present.review.draw import _draw
 
 
@@ -149,7 +150,7 @@ def _yield(y) -> str:
 def _mc_cells(row: dict) -> list[str]:
     frac = "" if row["fraction"] is None else f"{row['fraction']:.2%}"
     ci = "" if row["ci"] is None else f"{float(row['ci'][0]):.2%} to {float(row['ci'][1]):.2%}"
-    low = "" if row["lowest"] is None else f"{row['lowest'] * 100:+.1f} %"
+    low = "" if row["lowest"] is None else percent_text(row["lowest"], 1)
     sens = ", ".join(f"{n} {c:+.2f}" for n, c in row["sensitivity"]) or "—"
     return [row["where"], frac, ci, low, sens, row["source"]]
 

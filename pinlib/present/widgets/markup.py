@@ -10,12 +10,11 @@ ids stay in each row's tooltip.
 from __future__ import annotations
 
 import html
-import math
 import re
 
 from pinlib.core import labels
 from pinlib.core.errors import PinlibError
-from pinlib.model.result import CAUTION, BusResult, Group, margin_text
+from pinlib.model.result import CAUTION, BusResult, Group, figure_text, margin_text, percent_text
 from pinlib.present import charts
 from pinlib.present.report import format_value
 
@@ -87,8 +86,7 @@ def inline_error(err: PinlibError | None) -> str:
 def margin(m) -> str:
     if m is None:
         return ""
-    m = float(m)
-    return "∞" if not math.isfinite(m) else f"{m * 100:+.0f} %"
+    return percent_text(m)
 
 
 def _caption(text: str) -> str:
@@ -102,7 +100,7 @@ def figures_table(figures: dict, caption: str = "Figures") -> str:
     values = {name: f.value for name, f in figures.items()}
     rows = "".join(
         f'<tr title="{e(name)}"><td style="{CELL}">{e(labels.figure_label(name))}</td>'
-        f'<td style="{NUM}">{e(format_value(figures[name].value, figures[name].unit))}'
+        f'<td style="{NUM}">{e(figure_text(figures[name]))}'
         "</td></tr>" for name in labels.shown_figures(values))
     return (f'<table style="{TABLE}">{_caption(caption)}'
             f'<tr><th style="{HEAD}">figure</th><th style="{HEAD}">value</th></tr>{rows}'

@@ -9,7 +9,7 @@ from dataclasses import field
 import numpy as np
 
 from pinlib.core.valueclass import value_class
-from pinlib.model.result import json_number
+from pinlib.model.result import json_number, percent_text
 from pinlib.studies.whatif.tally import MarginHistogram
 from pinlib.studies.whatif.tolerances import Parameter
 from pinlib.studies.whatif.yields import CONFIDENCE, Yield, _pct
@@ -205,4 +205,4 @@ def _low(c: McCheck) -> float:
 
 
 def _fmt_margin(m) -> str:
-    return "—" if m is None else f"{m * 100:+.1f} %"
+    return percent_text(m, 1)
