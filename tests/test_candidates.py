@@ -39,6 +39,11 @@ def assert_same_ranking(fast: cand.Ranking, slow: cand.Ranking) -> None:
         else:
             assert a.worst_margin == pytest.approx(b.worst_margin, rel=1e-9), a.part
         assert (a.worst_check or {}).get("id") == (b.worst_check or {}).get("id"), a.part
+        for key in ("margin_unit", "status_by"):
+            got = ((a.worst_check or {}).get(key), (b.worst_check or {}).get(key))
+            if key == "status_by":  # a batch names no subject where the engine kept none
+                got = tuple(None if x is None else x["id"] for x in got)
+            assert got[0] == got[1], (a.part, key)
         assert len(a.margins) == len(b.margins), a.part
         assert np.allclose(a.margins, b.margins, rtol=1e-9, atol=0.0), a.part
         assert a.current == b.current
@@ -386,3 +391,39 @@ def test_another_devices_rating_does_not_rank_the_candidates():
     # range (+8.3 %); now it is each one's own
     got = cand.rank_candidates(DEMO_DESIGN, "U12")
     assert all(c.worst_check["subject"] != "U1" for c in got.candidates)
+
+
+def test_a_margin_in_volts_is_shown_in_volts_and_never_ranked_as_a_fraction(capsys):
+    # reproducer: at the demo's translator Q1 the gate overdrive, 210 mV, read "+21.0 %"
+    # and was compared with fractional margins; it is the worst here because it alone
+    # warns (the ratings checks pass)
+    r = cand.rank_candidates(DEMO_DESIGN, "Q1")
+    first = r.candidates[0]
+    assert first.part == "level-translator-mosfet" and first.status == "warn"
+    assert first.worst_check["id"] == "bridge-gate-drive"
+    assert first.worst_check["margin_unit"] == "V"
+    # the engine's own check, as pinlib check gives it: its margin in volts
+    from pinlib.engines.dispatch import check_design
+    gate = [c for b in check_design(DEMO_DESIGN).results() for _, _, c in b.all_checks()
+            if c.id == "bridge-gate-drive"]
+    assert len(gate) == 1 and gate[0].margin_unit == "V"
+    assert first.worst_margin == pytest.approx(gate[0].margin, rel=1e-12)
+    assert first.margin_text() == "+210 mV"
+    assert not any(m == pytest.approx(first.worst_margin) for m in first.margins)
+    assert main(["candidates", str(DEMO), "Q1", "--json"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    assert data["candidates"][0]["worst_margin_unit"] == "V"
+    assert "+21.0 %" not in r.format_text(width=80)
+
+
+def test_a_status_no_candidate_can_move_is_named_once(capsys):
+    # every part at U4 warns because the translator Q1 on the other segment warns (its
+    # gate drive): the ranking marks the status and names that check once
+    r = cand.rank_candidates(DEMO_DESIGN, "U4")
+    warned = [c for c in r.candidates if c.status == "warn"]
+    assert warned and all(c.worst_check["status_by"]["id"] == "bridge-gate-drive"
+                          for c in warned)
+    text = r.format_text(width=None)
+    assert "WARN†" in text
+    assert text.count("Translator gate drive: a check no part at U4 can move") == 1
+    assert_same_ranking(r, cand.rank_candidates_slow(DEMO_DESIGN, "U4"))

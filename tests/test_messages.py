@@ -548,6 +548,15 @@ def _(env):
     return _implausible(env).message
 
 
+@case("STATUS_SET_ELSEWHERE", M.STATUS_SET_ELSEWHERE.format(
+    status="WARN", check="sensors sensor-1v8 Translator gate drive", ref="U4"))
+def _(env):
+    from pinlib.studies.candidates import rank_candidates
+
+    demo = Path(__file__).resolve().parents[1] / "workbooks" / "designs" / "demo-board.toml"
+    return rank_candidates(load_design(demo), "U4").format_text(width=None)
+
+
 def _typ_beyond(env):
     from pinlib.library.plausible import part_warnings
 

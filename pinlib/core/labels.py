@@ -34,7 +34,9 @@ FIGURES: dict[str, str] = {
     "rp_min": "Rp(min)",
     "rp_max": "Rp(max)",
     "bus_capacitance": "Bus capacitance Cb",
-    "rise_time": "Rise time tr (30–70 %)",
+    # tr between the bus standard's own points: 30-70 % of VDD on I2C, 0.65 V to 1.50 V on
+    # SMBus (the check's message and the SMBus segment's note say which)
+    "rise_time": "Rise time tr",
     "rise_time_10_90": "Rise time, 10–90 %",
     "fall_time": "Fall time tf",
     "rise_factor": "Rise factor k (tr = k·Rp·Cb)",
@@ -148,7 +150,7 @@ def _split_line(name: str) -> tuple[str, str | None]:
 
 def figure_label(name: str) -> str:
     """A figure's label: ``rp_min`` -> ``"Rp(min)"``, ``rise_time_sda`` ->
-    ``"Rise time tr (30–70 %), SDA"``; an id without an entry in :data:`FIGURES` in plain
+    ``"Rise time tr, SDA"``; an id without an entry in :data:`FIGURES` in plain
     words."""
     if name in FIGURES:
         return FIGURES[name]

@@ -388,6 +388,8 @@ NOT_OPEN_DRAIN_BUS = "not an open-drain bus"
 NOT_PUSH_PULL_BUS = "the push-pull engine evaluates spi and gpio buses"
 NO_DRIVER_ON_LINE = "no device drives this line"
 # pinlib/engines/dispatch.py: hints naming where an error an engine met comes from
+STATUS_SET_ELSEWHERE = ("† {status} set by {check}: a check no part at {ref} can move "
+                        "(pinlib check shows it)")
 LEVEL_BELOW_GROUND = "an output low level below ground at this rail"
 LEVEL_BELOW_GROUND_EXPECTED = ("a level at or above 0 V; it resolves to {level} at VDD {vdd} "
                                "(write it in volts, or relative to a supply it suits)")

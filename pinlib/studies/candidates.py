@@ -36,6 +36,7 @@ import numpy as np
 from pinlib.core import messages as M
 from pinlib.core.collector import older_objects_aside
 from pinlib.core.errors import InputError, PinlibError
+from pinlib.core.labels import check_label, short_label
 from pinlib.core.progress import progress_bar
 from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS
 from pinlib.core.quantity import format_si
@@ -120,7 +121,9 @@ class Candidate:
         The smallest margin of any check on those buses that the part can move (not
         :data:`FIXED_CHECKS`); a margin that cannot be computed counts as −inf. [1]
     worst_check : dict or None
-        Where that margin is: ``bus``, ``segment``, ``line``, ``id``, ``subject``. [1]
+        Where that margin is: ``bus``, ``segment``, ``line``, ``id``, ``subject``; and
+        ``margin_unit`` (``"V"``) where the margin is in that unit, not a fraction of
+        the limit (such a margin is shown, never ranked against fractions). [1]
     figures : dict
         By bus id: the figures that matter (see :data:`FIGURES`), SI with units. [SI]
     current : bool
@@ -152,9 +155,19 @@ class Candidate:
         # next worst); then the id
         return (_RANK[self.status], tuple(-m for m in self.margins), self.part)
 
+    def margin_text(self, decimals: int = 1) -> str:
+        """The worst margin as people read it: ``+4.0 %``, or in its own unit where it
+        is not a fraction of the limit (``+210 mV``, a translator's gate overdrive)."""
+        unit = (self.worst_check or {}).get("margin_unit")
+        m = self.worst_margin
+        if unit is None or m is None or not math.isfinite(m):
+            return percent_text(m, decimals)
+        return ("−" if m < 0 else "+") + format_si(abs(m), unit)
+
     def to_json(self) -> dict:
         return {"part": self.part, "title": self.title, "category": self.category,
                 "status": self.status, "worst_margin": json_number(self.worst_margin),
+                "worst_margin_unit": (self.worst_check or {}).get("margin_unit"),
                 "worst_check": self.worst_check,
                 "figures": {b: {k: {"value": json_number(v), "unit": u} for k, (v, u) in f.items()}
                             for b, f in self.figures.items()},
@@ -206,6 +219,17 @@ class Ranking:
                 "set_aside": dict(self.set_aside), "count": len(self.candidates),
                 "candidates": [c.to_json() for c in shown], "notes": list(self.notes)}
 
+    def status_notes(self, shown) -> list[str]:
+        """For the candidates ``shown`` whose status a check they cannot move sets
+        (marked †): which check, once each."""
+        seen: dict[str, str] = {}
+        for c in shown:
+            by = (c.worst_check or {}).get("status_by")
+            if by:
+                seen.setdefault(_where_text(by, True), c.status)
+        return [M.STATUS_SET_ELSEWHERE.format(status=st.upper(), check=where, ref=self.ref)
+                for where, st in seen.items()]
+
     def format_text(self, top: int | None = 20, width: int | None = None) -> str:
         """The ranking as text; ``width``: characters per line (None: no limit), the
         table's trailing figure columns left out (and named) where they do not fit."""
@@ -224,16 +248,14 @@ class Ranking:
                     fig_cols.append((b["bus"], name, unit))
             multi = len(self.buses) > 1
             head = ["#", "part", "status", "worst", "set by"] + [
-                (f"{n}@{b}" if multi else n) for b, n, _ in fig_cols]
+                (f"{short_label(n)}@{b}" if multi else short_label(n)) for b, n, _ in fig_cols]
             rows = []
             for i, c in enumerate(shown, 1):
                 wc = c.worst_check
-                by = "—" if wc is None else " ".join(
-                    x for x in (wc["bus"] if multi else None, wc.get("segment"), wc.get("line"),
-                                wc["id"], wc.get("subject") if not wc.get("line") else None) if x)
+                by = "—" if wc is None else _where_text(wc, multi)
                 row = [str(i), c.part + (" *" if c.current else ""),
-                       c.status.upper(),
-                       percent_text(c.worst_margin, 1), by if c.status != "error" else
+                       c.status.upper() + ("†" if wc and wc.get("status_by") else ""),
+                       c.margin_text(1), by if c.status != "error" else
                        (c.error or "")]
                 for b, n, unit in fig_cols:
                     v = c.figures.get(b, {}).get(n)
@@ -248,6 +270,9 @@ class Ranking:
             if len(shown) < len(self.candidates):
                 lines.append(f"… {len(self.candidates) - len(shown)} more (--top N)")
             lines.append("* the part in the design now")
+            for note in self.status_notes(shown):
+                lines += [note] if width is None else textwrap.wrap(note, width,
+                                                                    subsequent_indent="  ")
         for n in self.notes:
             lines += ([f"note: {n}"] if width is None else
                       textwrap.wrap(f"note: {n}", width, subsequent_indent="    "))
@@ -337,19 +362,34 @@ def _summary_of(results: list[BusResult], places) -> tuple:
     engine results."""
     status = worst(r.status for r in results)
     best, where, margins, rank = None, None, [], None
+    fixed, fixed_rank = None, -1  # the worst-status check the part cannot move
     for r, (_, dev) in zip(results, places, strict=True):
         for seg_id, line, c in r.all_checks():
+            if not _ranks(c.id, dev, c.subject):
+                if _RANK.get(c.status, 0) > fixed_rank:
+                    fixed_rank = _RANK.get(c.status, 0)
+                    fixed = {"bus": r.id, "segment": seg_id, "line": line, "id": c.id,
+                             "subject": c.subject}
+                continue
             # a margin that does not exist (its check says why) counts as −inf, as in a batch
-            if (c.margin is None and c.reason is None) or not _ranks(c.id, dev, c.subject):
+            if c.margin is None and c.reason is None:
                 continue
             m = _margin_key(c.margin)
-            margins.append(m)
+            # a margin in volts (a translator's gate overdrive) is no fraction of a limit:
+            # it sets the status, and is the worst only where no check of that status
+            # has a relative margin; it is never ranked against fractions
+            absolute = c.margin_unit is not None and c.margin is not None
+            if not absolute:
+                margins.append(m)
             # the worst is a check of the worst status, then of the smallest margin: a warn
             # is set by a warning check, not by a passing one at a smaller margin
-            key = (-_RANK.get(c.status, 0), m)
+            key = (-_RANK.get(c.status, 0), absolute, m)
             if rank is None or key < rank:
                 rank, best, where = key, m, {"bus": r.id, "segment": seg_id, "line": line,
                                              "id": c.id, "subject": c.subject}
+                if absolute:
+                    where["margin_unit"] = c.margin_unit
+    where = _with_status_by(where, None if rank is None else -rank[0], fixed, fixed_rank)
     figures = {}
     for r, (bus, dev) in zip(results, places, strict=True):
         if bus.protocol in OPEN_DRAIN_PROTOCOLS:
@@ -363,6 +403,24 @@ def _summary_of(results: list[BusResult], places) -> tuple:
             group, figs = r, FIGURES["push-pull"]
         figures[r.id] = {n: (_fig(group, n), u) for n, u in figs}
     return status, best, where, figures, sorted(margins)
+
+
+def _where_text(wc: dict, multi: bool) -> str:
+    """Where a check is, as the ranking names it: ``main-3v3 Noise margin low SDA``."""
+    return " ".join(x for x in (wc["bus"] if multi else None, wc.get("segment"),
+                                wc.get("line"), check_label(wc["id"]),
+                                wc.get("subject") if not wc.get("line") else None) if x)
+
+
+def _with_status_by(where: dict | None, rank: int | None, fixed: dict | None,
+                    fixed_rank: int) -> dict | None:
+    """``where`` with ``status_by``: the check that sets a worse status than any check
+    the candidate can move (a translator's gate drive elsewhere on the bus warns for
+    every part at the position), so the ranking says where the status comes from."""
+    if fixed is None or fixed_rank <= 0 or (rank is not None and fixed_rank <= rank):
+        return where
+    return {**(where or {k: fixed[k] for k in ("bus", "segment", "line", "id", "subject")}),
+            "status_by": fixed}
 
 
 def _fig(group, name):
@@ -429,9 +487,21 @@ def _batch_summaries(bus: Bus, dev: Device, design: Design, ref: str, parts: lis
     bb = ob.build(bus, design, ob.WorstCase(len(parts)), swap=(ref, parts), collected=collected)
     cols, codes, where, use = [], [], [], []
     status = np.zeros(len(parts), dtype=np.int8)
+    fixed_code = np.full(len(parts), -1, dtype=np.int8)
+    fixed: list[dict | None] = [None] * len(parts)
     single = len(bus.segments) == 1
     for seg_id, c in bb.checks():
         status = np.maximum(status, c.status)
+        if c.id in OWN_CHECKS and not dev.is_bridge or not _ranks(c.id, dev):
+            # the worst-status check the part cannot move, per variant (as _summary_of)
+            st = np.broadcast_to(np.asarray(c.status, dtype=np.int8), (len(parts),))
+            for j in np.flatnonzero(st > fixed_code):
+                subject = _batch_subject(c, int(j))
+                if c.id in OWN_CHECKS and _names(subject, ref):
+                    continue
+                fixed_code[j] = st[j]
+                fixed[j] = {"bus": bus.id, "segment": None if single else seg_id,
+                            "line": None, "id": c.id, "subject": subject}
         if c.margin is None:
             continue
         if c.id in OWN_CHECKS and not dev.is_bridge:
@@ -468,10 +538,22 @@ def _batch_summaries(bus: Bus, dev: Device, design: Design, ref: str, parts: lis
             figs[name] = (None if arr is None else float(arr[j]), unit)
         if cols and ok[j].any():
             m, w, ms = float(mg[j, idx[j]]), dict(where[idx[j]]), sorted(mg[j, ok[j]].tolist())
+            worst_code = int(code[j, idx[j]])
         else:
-            m, w, ms = None, None, []
+            m, w, ms, worst_code = None, None, [], None
+        w = _with_status_by(w, worst_code, fixed[j], int(fixed_code[j]))
         out.append((int(status[j]), m, w, figs, ms))
     return out
+
+
+def _batch_subject(c, j: int) -> str | None:
+    """The subject a batched check names for variant ``j`` (the row that set it)."""
+    if not c.names:
+        return None
+    if c.row is None:
+        return c.names[0] if len(c.names) == 1 else None
+    rows = np.broadcast_to(c.row, (j + 1,)) if np.ndim(c.row) == 0 else c.row
+    return c.names[int(rows[j])]
 
 
 def rank_candidates(design: Design, ref: str, *, categories=None, progress=None) -> Ranking:
@@ -614,12 +696,16 @@ class _Summaries:
         """One candidate over every bus of the position: its worst status and margin."""
         if p.id in self.errors:
             return _failed(p, current, self.methods[p.id], self.errors[p.id])
-        status, best, where, figures, margins = 0, None, None, {}, []
+        status, best, where, figures, margins, rank = 0, None, None, {}, [], None
         for bus, _ in self.places:
             st, m, w, f, ms = self.per[p.id][bus.id]
             status = max(status, st)
-            if m is not None and (best is None or m < best):
-                best, where = m, w
+            # as on one bus: the worst status first, a relative margin before one in volts
+            key = (-st, bool(w and w.get("margin_unit")), m)
+            if m is not None and (rank is None or key < rank):
+                rank, best, where = key, m, w
+            elif where is None and w is not None and w.get("status_by"):
+                where = w
             figures[bus.id] = f
             margins.extend(ms)
         if where is not None and "signal" in where:
@@ -631,5 +717,7 @@ class _Summaries:
 def _where(w: dict) -> dict:
     """A batch check's place in the form engine results give (line checks of an
     open-drain bus sit on their segment, with the signal as subject's first word)."""
-    return {"bus": w["bus"], "segment": w["segment"], "line": None, "id": w["id"],
-            "subject": w.get("signal")}
+    out = {"bus": w["bus"], "segment": w["segment"], "line": None, "id": w["id"],
+           "subject": w.get("signal")}
+    out.update({k: w[k] for k in ("margin_unit", "status_by") if k in w})
+    return out

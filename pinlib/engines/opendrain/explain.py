@@ -161,7 +161,7 @@ def segment_notes(grp: Group, lim: OpenDrainLimits, seg_in: SegmentInputs, r_eff
     capacitance, and every default taken for a value not stated."""
     if lim.rise_definition == "smbus":
         grp.notes.insert(0, f"rise and fall times follow the SMBus definition: {lim.rise_text}; "
-                            "rise_time_10_90 is 10–90 % of VDD")
+                            "the figure 'Rise time, 10–90 %' is 10–90 % of VDD")
     if seg_in.auto:
         grp.notes.append(f"pull-up chosen from {seg_in.segment.pullup_series}: "
                          f"{_f(seg_in.pullup, 'Ω')} (±{seg_in.tol:.0%}), the value with the "

@@ -53,7 +53,6 @@ from pinlib.present.widgets.markup import (
     e,
     error_html,
     inline_error,
-    margin,
     note,
 )
 from pinlib.studies.compare import format_change, format_figure
@@ -482,8 +481,9 @@ class SwapExplorer(_Panel):
             cells = [f'<td style="{NUM}">{i}</td>',
                      f'<td style="{CELL}"><code>{e(c.part)}</code>'
                      + (" (now)" if c.current else "") + "</td>",
-                     f'<td style="{CELL}">{badge(c.status)}</td>',
-                     f'<td style="{NUM}">{e(margin(c.worst_margin))}</td>',
+                     f'<td style="{CELL}">{badge(c.status)}'
+                     + ("†" if (c.worst_check or {}).get("status_by") else "") + "</td>",
+                     f'<td style="{NUM}">{e(c.margin_text(0))}</td>',
                      f'<td style="{CELL}">{e(by.strip())}</td>']
             for b, n, unit in cols:
                 v = c.figures.get(b, {}).get(n)
@@ -494,7 +494,8 @@ class SwapExplorer(_Panel):
                 if len(r.candidates) > top else "")
         which = (f"; figures of bus {e(shown['bus'])}" if shown is not None and
                  len(r.buses) > 1 else "")
-        notes = "".join(f"<li>{e(n)}</li>" for n in r.notes)
+        notes = "".join(f"<li>{e(n)}</li>" for n in
+                        r.status_notes(r.candidates[:top]) + list(r.notes))
         return (f'<div style="{BLOCK};font-size:12px">Position {e(r.ref)}, now '
                 f"<code>{e(r.current)}</code>: {e(r.count_text())}{which}</div>"
                 f'<table style="{TABLE}"><tr>'
