@@ -249,3 +249,23 @@ def test_a_check_without_a_value_gives_its_reason_on_its_line(monkeypatch, capsy
     assert line.startswith("FAIL flash U2") and "never crosses" in line and "fix: " in line
     assert "max clock — (not computed" in out
     assert not re.search(r"\bnan\b|\binf\b|∞", out, re.IGNORECASE)
+
+
+def test_the_bus_line_gives_the_effective_pull_up_beside_the_chosen_one(tmp_path):
+    # reproducer: with a module's own 10 kΩ pull-ups at U4, "Rp 1.95 kΩ…3.16 kΩ, chosen
+    # 3.3 kΩ" read as a resistor outside its window; the lines see 3.3 kΩ ∥ 10 kΩ
+    design = tmp_path / "d.toml"
+    design.write_text((Path(DEMO_ARG)).read_text(encoding="utf-8"), encoding="utf-8")
+    assert main(["swap", str(design), "U4=sensor-breakout-module", "--write"]) in (0, 1)
+    res = check_file(design)
+    seg = next(s for s in res.bus("sensors").segments if s.id == "main-3v3")
+    own, eff = seg.figures["pullup_resistor"].value, seg.figures["pullup_sda"].value
+    assert own == 3300.0 and eff < own
+    line = bus_line(res.bus("sensors"))
+    assert "chosen 3.3 kΩ (2.48 kΩ with the pull-ups in parts)" in " ".join(line.split())
+    # derived: 3.3 kΩ ∥ 10 kΩ = 2.481 kΩ (the built-in sensor-breakout-module class's
+    # pull-ups, 10 kΩ: common practice, no source)
+    assert eff == pytest.approx(1 / (1 / 3300 + 1 / 10e3), rel=1e-9)
+    # no addition where the lines see the resistor alone
+    plain = check_file(DEMO_ARG)
+    assert "with the pull-ups in parts" not in bus_line(plain.bus("sensors"))

@@ -79,6 +79,23 @@ def _fig_text(group, name: str) -> str | None:
     return figure_text(f)
 
 
+def _effective(group) -> str:
+    """Where pull-ups inside parts sit beside the resistor, what the lines see: the
+    chosen value alone would read as inside a window the effective one may leave."""
+    own = group.figures.get("pullup_resistor")
+    if own is None or own.value is None:
+        return ""
+    eff = {sig: group.figures.get(f"pullup_{sig}") for sig in ("sda", "scl")}
+    eff = {sig: f for sig, f in eff.items() if f is not None and f.value is not None}
+    if not eff or all(abs(f.value - own.value) <= 1e-9 * own.value for f in eff.values()):
+        return ""
+    texts = {sig: figure_text(f) for sig, f in eff.items()}
+    if len(set(texts.values())) == 1:
+        return f" ({next(iter(texts.values()))} with the pull-ups in parts)"
+    both = ", ".join(f"{sig.upper()} {t}" for sig, t in texts.items())
+    return f" ({both} with the pull-ups in parts)"
+
+
 def _open_drain(group) -> str:
     parts = []
     cb = _fig_text(group, "bus_capacitance")
@@ -89,7 +106,7 @@ def _open_drain(group) -> str:
         parts.append(f"Rp {lo or '—'}…{hi or '—'}")
     rp = _fig_text(group, "pullup_resistor") or _fig_text(group, "pullup")
     if rp:
-        parts.append(f"chosen {rp}")
+        parts.append(f"chosen {rp}" + _effective(group))
     tr = _fig_text(group, "rise_time")
     if tr:
         parts.append(f"tr {tr}")
