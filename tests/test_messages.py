@@ -557,6 +557,18 @@ def _(env):
     return rank_candidates(load_design(demo), "U4").format_text(width=None)
 
 
+@case("THRESHOLDS_INVERTED", M.THRESHOLDS_INVERTED.format(v_il="1.5 VDD", v_ih="0.7 VDD"))
+def _(env):
+    text = PART.format(id="p").replace('c_in = "8 pF"',
+                                       'c_in = "8 pF"\nv_il = "1.5 VDD"\nv_ih = "0.7 VDD"', 1)
+    return _fails(lambda e: e.part(text), env)
+
+
+@case("F_MAX_NOT_POSITIVE")
+def _(env):
+    return _fails(lambda e: e.part(PART.format(id="p") + '\n[timing]\nf_max = "0 Hz"\n'), env)
+
+
 def _typ_beyond(env):
     from pinlib.library.plausible import part_warnings
 

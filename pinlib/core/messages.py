@@ -388,6 +388,9 @@ NOT_OPEN_DRAIN_BUS = "not an open-drain bus"
 NOT_PUSH_PULL_BUS = "the push-pull engine evaluates spi and gpio buses"
 NO_DRIVER_ON_LINE = "no device drives this line"
 # pinlib/engines/dispatch.py: hints naming where an error an engine met comes from
+THRESHOLDS_INVERTED = ("v_il {v_il} lies above v_ih {v_ih} at every supply: no input "
+                       "reads that way (the two swapped, or a slip?)")
+F_MAX_NOT_POSITIVE = "a maximum clock of 0 Hz allows no clock at all"
 STATUS_SET_ELSEWHERE = ("† {status} set by {check}: a check no part at {ref} can move "
                         "(pinlib check shows it)")
 LEVEL_BELOW_GROUND = "an output low level below ground at this rail"

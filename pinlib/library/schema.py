@@ -149,6 +149,18 @@ class Pin(Record):
     description: str | None = None
 
     @after
+    def _thresholds_in_order(self):
+        # VIL above VIH at every supply (both written alike, "1.5 VDD" beside "0.7 VDD"):
+        # no input reads that way; two thresholds written differently ("2 V" beside
+        # "0.7 VDD") cross at some supply and are left to the part's own range
+        lo, hi = self.v_il, self.v_ih
+        if lo is not None and hi is not None:
+            ends = (0.5, 50.0)  # the schema's voltage range, where a threshold can sit
+            if all(float(lo.at(v)) > float(hi.at(v)) for v in ends):
+                raise ValueError(M.THRESHOLDS_INVERTED.format(v_il=lo.text, v_ih=hi.text))
+        return self
+
+    @after
     def _fast_on_push_pull(self):
         if self.fast is not None and self.drive != "push-pull":
             raise ValueError(M.FAST_CORNER_NEEDS_PUSH_PULL.format(drive=self.drive))
@@ -175,6 +187,13 @@ class Timing(Record):
     test_load: Capacitance | None = None
     # bridging parts, isolators, buffers
     t_pd: Time | None = None
+
+    @check("f_max")
+    def _clock_above_zero(cls, v, earlier):
+        # a maximum clock of 0 Hz allows no clock at all: a slip, not a rating
+        if v is not None and not v.value > 0.0:
+            raise ValueError(M.F_MAX_NOT_POSITIVE)
+        return v
 
 
 class Supply(Record):
