@@ -253,7 +253,7 @@ def test_heavier_pin_flips_rise_time_and_names_the_part_value(board):
     lines = [ln.strip() for ln in u4.lines()]
     assert "U4 SDA c_in 8 pF → 80 pF, source: test: heavy pin (invented) [estimate]" in lines
     text = changes.format_text()
-    assert "rise-time SDA: pass → fail" in text
+    assert "Rise time SDA: pass → fail" in text
     assert "U4 SDA c_in 8 pF → 80 pF" in text
     assert not changes.empty
     assert [p.ref for p in changes.part_changes] == ["U4"]  # U1 unchanged: not listed
@@ -453,7 +453,7 @@ def test_status_changes_include_new_and_removed_checks():
     assert (by_id["rise-time"].old, by_id["rise-time"].new) == ("pass", "fail")
     assert (by_id["gone"].old, by_id["gone"].new) == ("pass", None)
     assert (by_id["fresh"].old, by_id["fresh"].new) == (None, "pass")
-    assert "b rise-time SDA: pass → fail (1 s → 3 s, limit 2 s); source: src" in \
+    assert "b Rise time SDA: pass → fail (1 s → 3 s, limit 2 s); source: src" in \
         by_id["rise-time"].format()
 
 
@@ -466,7 +466,7 @@ def test_check_whose_worst_case_moves_to_another_device_is_the_same_check():
     worse = _result({}, status="warn", checks=[dict(chk, subject="SDA U4", status="warn")])
     (c,) = compare(old, worse).status_changes
     assert (c.subject, c.old_subject, c.old, c.new) == ("SDA U4", "SDA U1", "pass", "warn")
-    assert c.format().startswith("b v-oh SDA U4 (was SDA U1): pass → warn")
+    assert c.format().startswith("b VOH SDA U4 (was SDA U1): pass → warn")
 
 
 def test_parse_change_threshold():
@@ -589,13 +589,13 @@ def test_swap_prints_side_by_side_and_exits_like_check(board, capsys):
     assert "before" in out and "after" in out
     # the rise time (SDA's and SCL's the same: shown once, as the bus's) moved, marked
     assert re.search(r"^\*\s+Rise time tr  ", out, re.M)
-    assert "rise-time SDA: pass → fail" in out
+    assert "Rise time SDA: pass → fail" in out
     assert "U4 SDA c_in 8 pF → 80 pF" in out
     assert board.read_bytes() == original  # no --write: untouched
     # the default: what changed only (status, the figures that moved, the part values)
     assert main(["swap", str(board), "U4=eeprom-hicap"]) == 1
     short = capsys.readouterr().out
-    assert "rise-time SDA: pass → fail" in short and "U4 SDA c_in 8 pF → 80 pF" in short
+    assert "Rise time SDA: pass → fail" in short and "U4 SDA c_in 8 pF → 80 pF" in short
     assert "Figures that moved:" in short and "Rise time tr" in short
     assert not re.search(r"^\*\s+Rise time", short, re.M)
     assert len(short.splitlines()) < len(out.splitlines())

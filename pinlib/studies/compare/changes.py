@@ -10,7 +10,7 @@ from typing import Any
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
-from pinlib.core.labels import figure_label, shown_figures
+from pinlib.core.labels import check_label, figure_label, shown_figures
 from pinlib.core.quantity import Threshold, format_si, format_threshold
 from pinlib.core.valueclass import value_class
 from pinlib.studies.compare.figures import (
@@ -52,7 +52,8 @@ class StatusChange:
     old_subject: str | None = None  # when the worst case moved to another device
 
     def format(self) -> str:
-        where = f"{self.path} {self.check}" + (f" {self.subject}" if self.subject else "")
+        where = f"{self.path} {check_label(str(self.check))}" + (
+            f" {self.subject}" if self.subject else "")
         if self.old_subject:
             where += f" (was {self.old_subject})"
         old = self.old or "(absent)"
