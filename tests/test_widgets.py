@@ -34,7 +34,7 @@ pytest.importorskip("ipywidgets")
 pytest.importorskip("altair")
 pytest.importorskip("vl_convert")
 
-from pinlib.core.errors import DesignError, InputError  # noqa: E402
+from pinlib.core.errors import DesignError, InputError, WriteError  # noqa: E402
 from pinlib.core.tomlfile import tomllib  # noqa: E402
 from pinlib.engines.dispatch import check_design, check_file  # noqa: E402
 from pinlib.library import load_library  # noqa: E402
@@ -286,6 +286,40 @@ def test_save_refuses_an_invalid_design_and_writes_nothing(library, tmp_path, mo
     assert target.read_text(encoding="utf-8") == "old"
     b._save_clicked()  # the button with no name: refused beside the box
     assert "file name" in b.save_error.value
+
+
+def test_save_never_overwrites_an_existing_file_unless_ticked(library, tmp_path):
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    target = tmp_path / "demo-board.toml"
+    target.write_text("# a commented design\n", encoding="utf-8")
+    with pytest.raises(WriteError, match="exists"):
+        b.save(target)
+    assert target.read_text(encoding="utf-8") == "# a commented design\n"
+    # the button: refused beside the box, naming the file; the box offers to overwrite it
+    b.save_path.value = str(target)
+    b.save_button.click()
+    assert target.read_text(encoding="utf-8") == "# a commented design\n"
+    assert str(target) in b.save_error.value and "overwrite" in b.save_error.value
+    assert b.save_overwrite.description == "overwrite demo-board.toml"
+    # ticked: replaced (atomically), and the consent is spent
+    b.save_overwrite.value = True
+    b.save_button.click()
+    assert target.read_text(encoding="utf-8") == b.design_text(relative_to=tmp_path)
+    assert "saved" in b.save_error.value and not b.save_overwrite.value
+    # a consent given for one name does not carry to another
+    other = tmp_path / "other.toml"
+    other.write_text("keep", encoding="utf-8")
+    b.save_overwrite.value = True
+    b.save_path.value = str(other)
+    assert not b.save_overwrite.value
+    b.save_button.click()
+    assert other.read_text(encoding="utf-8") == "keep"
+    # a folder is not a file to save into
+    b.save_overwrite.value = True
+    b.save_path.value = str(tmp_path)
+    b.save_overwrite.value = True
+    b.save_button.click()
+    assert "is a folder" in b.save_error.value
 
 
 # =========================================================================== LineExplorer
