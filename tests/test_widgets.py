@@ -581,6 +581,72 @@ def test_swap_candidates_ranking(explorer, monkeypatch):
     assert "pinlib.studies.candidates" in explorer.candidates_note.value
 
 
+def _listed(x) -> list[str]:
+    """What `pinlib swap` lists for the explorer's substitutions (status changes with
+    their values and limits, moved figures each quantity once), as the widget must show it
+    (HTML-escaped)."""
+    import html as _html
+
+    from pinlib.core.labels import figure_label
+    from pinlib.studies.compare import format_figure
+    from pinlib.studies.compare.changes import shown_changes
+
+    out = []
+    for c in x.changes.status_changes:
+        out.append(_html.escape(c.values_text(), quote=False))
+    for c in shown_changes(x.changes.figure_changes):
+        out.append(_html.escape(f"{figure_label(c.name)}", quote=False))
+        out.append(_html.escape(f"{format_figure(c.old, c.unit)} → "
+                                f"{format_figure(c.new, c.unit)}", quote=False))
+    return out
+
+
+def test_swap_change_list_shows_what_pinlib_swap_lists():
+    x = SwapExplorer(DEMO)
+    assert x.apply_swap("Q1", "i2c-repeater") == []
+    html = x.changes_html.value
+    couplings = [c for c in x.changes.status_changes if "<-" in c.path]
+    assert couplings  # the crosstalk checks of sensors.scl<-display.sclk changed status
+    assert html.count("<li title=") == len(x.changes.status_changes)  # each listed once
+    assert "sensors.scl&lt;-display.sclk" in html and "Crosstalk" in html
+    missing = [t for t in _listed(x) if t not in html]
+    assert not missing
+    # a check that appeared shows its value, not only its limit
+    offset = next(c for c in x.changes.status_changes if c.check == "bridge-offset")
+    assert offset.old is None and "600 mV, limit 940 mV" in html  # pinlib swap's text
+    # the default substitution: the coupling's moved figure is listed too
+    x.reset()
+    assert x.apply_swap("U4", "io-expander-i2c") == []
+    assert "Level held low, with noise" in x.changes_html.value
+    assert not [t for t in _listed(x) if t not in x.changes_html.value]
+
+
+def test_swap_device_list_names_the_segments_of_a_bridging_part(explorer):
+    labels = dict((v, k) for k, v in explorer.ref.options)
+    assert "(sensors/main-3v3, sensors/sensor-1v8)" in labels["Q1"]
+    assert labels["U4"].endswith("(sensors)")
+
+
+def test_swap_load_refuses_an_empty_path_and_says_when_results_are_old(explorer, tmp_path):
+    explorer.reset()
+    explorer.path_box.value = ""
+    explorer.load_button.click()
+    assert "a design file path is needed" in explorer.path_error.value
+    assert "directory" not in explorer.path_error.value
+    assert "Not recomputed" in explorer.held_html.value
+    explorer.path_box.value = str(tmp_path / "no-such.toml")
+    explorer.load_button.click()
+    assert "file not found" in explorer.path_error.value
+    assert "Not recomputed" in explorer.held_html.value and "no-such.toml" in \
+        explorer.held_html.value
+    # choosing another device recomputes the old design: the notice stays
+    explorer.ref.value = "U4"
+    assert "Not recomputed" in explorer.held_html.value
+    explorer.path_box.value = str(DEMO)
+    explorer.load_button.click()
+    assert explorer.path_error.value == "" and explorer.held_html.value == ""
+
+
 def test_find_file_from_a_subfolder(monkeypatch):
     monkeypatch.chdir(WORKBOOKS)
     assert find_file("workbooks/designs/demo-board.toml").resolve() == DEMO.resolve()
