@@ -353,6 +353,22 @@ def test_line_figures_are_the_engines_for_its_design(line, library):
                                         line.figures["edge_rise_time"].value)
 
 
+def test_line_chart_point_is_the_checks_figure_in_daisy_chain_placement(library):
+    # two receivers along a route: the figure is the slowest receiver's rise, and the
+    # chart's cross (captioned "the figure the checks use") must be that figure
+    x = LineExplorer(library, driver=("mcu-3v3", "sclk"),
+                     receivers=[("display-controller-spi", "sclk"),
+                                ("display-controller-spi", "sclk")], length=0.28)
+    for placement in ("far end", "daisy chain"):
+        x.set(placement=placement, series="auto")
+        assert x.error is None
+        assert x.edge_data.operating == (x.figures["load_capacitance"].value,
+                                         x.figures["edge_rise_time"].value), placement
+        assert x.edge_data.operating_fall == x.figures["edge_fall_time"].value
+        assert "the figure the checks use" in x.edge_data.subtitle
+    assert x.edge_data.operating_label.startswith("slowest receiver on this line")
+
+
 def test_line_auto_termination_is_z0_minus_r_out(line, library):
     import eseries
 

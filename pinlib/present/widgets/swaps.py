@@ -451,7 +451,7 @@ class SwapExplorer(_Panel):
         return charts.spec(charts.edge_vs_load, ed.loads, np.vstack(list(ed.curves.values())),
                            series=list(ed.curves),
                            points=ed.points if len(ed.points[0]) else None,
-                           operating=(ed.operating[0], ed.operating[1], "far end"),
+                           operating=(ed.operating[0], ed.operating[1], ed.operating_label),
                            title=f"{label}: edge time against load, {bus.id} {sig}")
 
     def _draw(self) -> None:
