@@ -436,6 +436,23 @@ def budget():
     return SpiBudget(DEMO, bus="display")
 
 
+def test_spi_budget_chart_gives_the_checks_margins_at_their_corner():
+    from pinlib.core.quantity import format_si
+
+    b = SpiBudget(DEMO, bus="flash")
+    b.set(clock=30e6)
+    notes = {d["path"]: d["text"] for layer in b.chart.data() for d in layer if "text" in d}
+    at_corner = [c for c in b.bus_result.checks if (c.details or {}).get("corner")
+                 and f"{c.id} {c.subject}" in notes]  # the budget's requirements
+    assert {c.id for c in at_corner} >= {"copi-setup", "cipo-setup"}
+    for c in at_corner:
+        # the checks table's figure (value minus limit at the check's worst corner)
+        m = c.value - c.limit
+        shown = f"worst corner {'+' if m >= 0 else ''}{format_si(m, 's')}"
+        assert shown in notes[f"{c.id} {c.subject}"], (c.id, notes)
+    assert "worst corner" in str(b.chart.spec["title"])
+
+
 def test_spi_budget_at_the_saved_clock_is_check_file(budget):
     budget.set(clock=10e6, spi_mode=3)
     saved = check_file(DEMO).bus("display")
