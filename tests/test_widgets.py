@@ -825,3 +825,42 @@ def test_crosstalk_explorer_is_the_engines_coupling():
     assert x.updates == 1 and "held low" not in x.wave_chart.svg
     with pytest.raises(InputError):
         x.set(spacing=-1.0)
+
+
+def test_crosstalk_chart_shades_by_the_rule_the_checks_use():
+    from pinlib.widgets import CrosstalkExplorer
+
+    x = CrosstalkExplorer(DEMO)
+    x.set(length=0.5)  # a long run: the noise crosses VIL at close spacings
+    d = x.sweep
+    assert d.t_sp and d.minimum_spacing is not None
+    above = [s for s, p in zip(d.spacing, d.peak, strict=True) if p > d.allowed]
+    assert above  # the curve stands above the band there ...
+    assert d.within_spacing > max(above)
+    # ... and every such point lies in the region drawn as a warning, from the minimum
+    # spacing (where no check fails) to where the noise is within the thresholds
+    assert all(d.minimum_spacing * (1 - 1e-9) <= s for s in above)
+    spec = str(x.noise_chart.spec)
+    assert "a warning, not a failure" in spec and "no check fails" in spec
+    assert "allowed noise" not in spec
+    failing = [c for c in x.result.checks if c.status == "fail"]
+    assert not failing  # at the design's 250 µm: the rule says no check fails
+    # the x axis: ticks 1, 2 and 5 of each decade (400 and 500 ran together)
+    ticks = [v for layer in x.noise_chart.spec["layer"]
+             for v in (layer.get("encoding", {}).get("x", {}).get("axis", {}) or {})
+             .get("values", [])]
+    assert ticks and set(ticks) <= {10.0, 20.0, 50.0, 100.0, 200.0, 500.0, 1000.0, 2000.0}
+
+
+def test_crosstalk_explorer_names_the_designs_aggressor_and_its_sliders_units():
+    from pinlib.widgets import CrosstalkExplorer
+
+    x = CrosstalkExplorer(DEMO)
+    x.set(edge_time=1e-9)
+    assert "sensors.scl beside display.sclk, its edge set to 1 ns" in x.status_html.value
+    assert "edge-1" not in x.status_html.value
+    with pytest.raises(InputError) as info:
+        x.set(spacing=30e-6)
+    text = info.value.message
+    assert "30 µm" in text and "50 µm" in text and "2 mm" in text
+    assert "Ω" not in text and "E24" not in text
