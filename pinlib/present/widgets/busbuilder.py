@@ -31,6 +31,7 @@ from pinlib.present.widgets.common import (
     _values,
     block_layout,
     button_layout,
+    choice_line,
     field_layout,
     heading,
     note_widget,
@@ -38,6 +39,7 @@ from pinlib.present.widgets.common import (
     style,
     toggle_layout,
     with_button,
+    with_button_below,
 )
 from pinlib.present.widgets.designdoc import (
     _design_doc,
@@ -568,8 +570,9 @@ class BusBuilder(_Panel):
             self.title, self.protocol, self.mode, self.mode_note, self.supply.box,
             self.supply_tolerance.box,
             heading("Parts"), self.category, self.fits_supply, self.function,
-            self.controller, self.controller_note, with_button(self.pick, self.add_button),
-            self.pick_note, with_button(self.placed, self.remove_button),
+            self.controller, choice_line(self.controller), self.controller_note,
+            with_button(self.pick, self.add_button), choice_line(self.pick), self.pick_note,
+            with_button_below(self.placed, self.remove_button),
             heading("Trace"), self.trace.box, self.extra_capacitance.box,
             heading("Pull-up"), self.pullup_mode, self.pullup, self.pullup_tolerance.box,
             heading("Bench: a measured rise"), self.rise_measured.box, self.c_probe.box,

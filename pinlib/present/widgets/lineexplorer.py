@@ -26,6 +26,7 @@ from pinlib.present.widgets.common import (
     _values,
     block_layout,
     button_layout,
+    choice_line,
     field_layout,
     heading,
     note_widget,
@@ -33,6 +34,7 @@ from pinlib.present.widgets.common import (
     style,
     toggle_layout,
     with_button,
+    with_button_below,
 )
 from pinlib.present.widgets.designdoc import (
     _design_doc,
@@ -374,9 +376,11 @@ class LineExplorer(_Panel):
 
     def _layout(self) -> W.Widget:
         controls = [
-            self.driver_part, self.driver_pin, self.pin_note, self.supply.box,
+            self.driver_part, choice_line(self.driver_part), self.driver_pin, self.pin_note,
+            self.supply.box,
             heading("Receivers"), self.any_function, with_button(self.pick, self.add_button),
-            self.pick_note, with_button(self.placed, self.remove_button),
+            choice_line(self.pick), self.pick_note,
+            with_button_below(self.placed, self.remove_button),
             heading("Trace"), self.trace.box,
             heading("Termination"), self.series_mode, self.series,
             heading("Placement"), self.placement, self.receiver_view,

@@ -32,6 +32,7 @@ from pinlib.present.widgets.common import (
     _values,
     block_layout,
     button_layout,
+    choice_line,
     field_layout,
     find_file,
     heading,
@@ -144,7 +145,7 @@ class SwapExplorer(_Panel):
             self._header("Rerun a saved design after a substitution"),
             with_button(self.path_box, self.load_button), self.path_error,
             self._columns(
-                [self.ref, self.new_part,
+                [self.ref, choice_line(self.ref), self.new_part, choice_line(self.new_part),
                  W.HBox([self.apply_button, self.reset_button]), self.refused_html,
                  self.swaps_html, heading("Charts and checks"), self.chart_bus],
                 [self.held_html, self.status_html, self.changes_html], basis=420),
