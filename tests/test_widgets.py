@@ -248,6 +248,19 @@ def test_bench_panel_takes_the_probe_out_of_a_measured_rise(builder):
     builder.set(rise_measured=0.0)
 
 
+def test_bench_messages_write_numbers_with_si_prefixes(library):
+    import re
+
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.rise_measured.text.value = "5 ms"  # above the field's 1 ms
+    refused = b.rise_measured.error_html.value
+    assert "from 0 ns to 1 ms" in refused and not re.search(r"\de[+-]\d", refused)
+    b.rise_measured.text.value = "5 ns"  # faster than the probe alone allows
+    shown = b.bench_html.value
+    assert "faster than the probe" in shown and not re.search(r"\de[+-]\d", shown)
+    assert re.search(r"k·Rp·C_probe = [\d.]+ ns", shown), shown
+
+
 def test_saved_design_loads_and_checks_the_same(builder, tmp_path, library):
     builder.set(pullup="auto", length=0.14, extra_capacitance=12e-12)
     path = builder.save(tmp_path / "board.toml")

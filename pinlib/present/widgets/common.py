@@ -155,7 +155,9 @@ def _shown(value: float | None, unit: str, shown: tuple[str, float] | None) -> s
         return ""
     if shown is not None:
         text, scale = shown
-        return f"{value / scale:.6g} {text}"
+        out = f"{value / scale:.6g} {text}"
+        # far from the shown unit's own size ("1e+06 ns"): the SI prefix that suits it
+        return out if "e" not in out.split()[0] else format_si(value, unit, digits=6)
     if unit == "":
         return f"{value:.6g}"
     return format_si(value, unit, digits=6)
