@@ -479,6 +479,36 @@ def test_a_bad_quantity_shows_an_error_beside_its_field(wb):
     assert not failures, "\n  ".join(["bad quantities:"] + failures)
 
 
+def test_save_as_an_existing_file_asks_before_overwriting(wb, lab):
+    if not wb.spec.name.startswith("01"):
+        pytest.skip("workbook 01 saves a design")
+    _, folder = lab
+    target = folder / "designs" / "demo-board.toml"
+    kept = target.read_bytes()
+    try:
+        wb.type_into("Save as", "designs/demo-board.toml", submit=False)
+        loc, info = wb.shown_control("Save")
+        loc.click()
+        wb.settle()
+        wb.screenshot("save-refused")
+        assert target.read_bytes() == kept, "Save overwrote an existing design"
+        marks = [m for m in wb.error_marks() if m["shown"]]
+        said = [m for m in marks if "designs/demo-board.toml exists" in m["text"]]
+        assert said and near(said[0], info, below=90), [m["text"] for m in marks]
+        box = wb.page.locator(".widget-checkbox", has_text="overwrite demo-board.toml")
+        assert box.count() == 1 and box.first.is_visible(), "no 'overwrite' box naming it"
+        # ticked, a second press replaces the file (atomically, as any save)
+        box.first.locator("input[type=checkbox]").check()
+        wb.settle()
+        loc.click()
+        wb.settle()
+        assert target.read_bytes() != kept and b"BusBuilder" in target.read_bytes()
+        again = wb.page.locator(".widget-checkbox", has_text="overwrite an existing file")
+        assert not again.first.locator("input[type=checkbox]").is_checked()  # asked again
+    finally:
+        target.write_bytes(kept)  # the later workbooks read this design
+
+
 def test_no_request_leaves_loopback(wb, chromium):
     _, guard = chromium
     mine = [url for where, url in guard.attempts if where == wb.spec.name]
