@@ -20,6 +20,7 @@ from pinlib.library import load_library
 from pinlib.library.loader import Library
 from pinlib.model.design import MODES, design_from_text
 from pinlib.present import charts, plotdata
+from pinlib.present.widgets.choices import choice_line, with_button_below
 from pinlib.present.widgets.common import (
     ChartView,
     QuantityField,
@@ -31,7 +32,6 @@ from pinlib.present.widgets.common import (
     _values,
     block_layout,
     button_layout,
-    choice_line,
     field_layout,
     heading,
     note_widget,
@@ -39,7 +39,6 @@ from pinlib.present.widgets.common import (
     style,
     toggle_layout,
     with_button,
-    with_button_below,
 )
 from pinlib.present.widgets.designdoc import (
     _design_doc,

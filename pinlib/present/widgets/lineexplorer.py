@@ -15,6 +15,7 @@ from pinlib.engines.dispatch import check_design
 from pinlib.library import load_library
 from pinlib.library.loader import Library
 from pinlib.present import charts, plotdata
+from pinlib.present.widgets.choices import choice_line, with_button_below
 from pinlib.present.widgets.common import (
     ChartView,
     QuantityField,
@@ -26,7 +27,6 @@ from pinlib.present.widgets.common import (
     _values,
     block_layout,
     button_layout,
-    choice_line,
     field_layout,
     heading,
     note_widget,
@@ -34,7 +34,6 @@ from pinlib.present.widgets.common import (
     style,
     toggle_layout,
     with_button,
-    with_button_below,
 )
 from pinlib.present.widgets.designdoc import (
     _design_doc,

@@ -25,6 +25,7 @@ from pinlib.engines.dispatch import check_design
 from pinlib.model.design import load_design
 from pinlib.present import charts, plotdata
 from pinlib.present.report import format_value
+from pinlib.present.widgets.choices import choice_line
 from pinlib.present.widgets.common import (
     ChartView,
     StaticView,
@@ -32,7 +33,6 @@ from pinlib.present.widgets.common import (
     _values,
     block_layout,
     button_layout,
-    choice_line,
     field_layout,
     find_file,
     heading,
