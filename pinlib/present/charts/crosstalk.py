@@ -98,19 +98,14 @@ def noise_vs_spacing(spacing, peak, *, allowed, design_spacing, design_peak,
     def yq(field):
         return _q(field, _title("Peak noise on the victim", uy), channel="y", pad=True)
 
-    band = [{"s": _num(x * fx), "lo": 0.0, "hi": _num(lim * fy), "series": region}
-            for x in (lo_s, hi_s)]
     rows = [{"s": _num(a * fx), "v": _num(b * fy), "series": curve}
             for a, b in zip(s[ok], p[ok], strict=True)]
     dot = [{"s": _num(x0 * fx), "v": _num(y0 * fy), "series": point}]
-    layers = [alt.Chart(_data(band)).mark_area(opacity=_REGION_OPACITY).encode(
-        x=xq(), y=yq("lo"), y2=alt.Y2("hi:Q"), color=colour)]
+    layers = [_area([lo_s, hi_s], 0.0, lim, fx, fy, region, xq(), yq("lo"), colour)]
     if warned:
         top = float(np.max(np.append(p[ok], lim)))
-        warn = [{"s": _num(x * fx), "lo": _num(lim * fy), "hi": _num(top * fy),
-                 "series": warned} for x in (float(minimum_spacing), float(within_spacing))]
-        layers.append(alt.Chart(_data(warn)).mark_area(opacity=_REGION_OPACITY).encode(
-            x=xq(), y=yq("lo"), y2=alt.Y2("hi:Q"), color=colour))
+        layers.append(_area([minimum_spacing, within_spacing], lim, top, fx, fy, warned,
+                            xq(), yq("lo"), colour))
     layers += [
         alt.Chart(_data(rows)).mark_line(strokeWidth=2, point=True).encode(
             x=xq(), y=yq("v"), color=colour),
@@ -122,6 +117,15 @@ def noise_vs_spacing(spacing, peak, *, allowed, design_spacing, design_peak,
         layers.append(alt.Chart(_data(rows_rule)).mark_rule(strokeDash=[6, 3]).encode(
             x=xq(), color=colour))
     return _titled(alt.layer(*layers), title, subtitle, width, height)
+
+
+def _area(xs, lo: float, hi: float, fx: float, fy: float, series: str, x, y, colour):
+    """A shaded region from ``lo`` to ``hi`` over the spacings ``xs`` (SI units)."""
+    alt = _alt()
+    rows = [{"s": _num(float(v) * fx), "lo": _num(lo * fy), "hi": _num(hi * fy),
+             "series": series} for v in xs]
+    return alt.Chart(_data(rows)).mark_area(opacity=_REGION_OPACITY).encode(
+        x=x, y=y, y2=alt.Y2("hi:Q"), color=colour)
 
 
 def _labels(y0, x0, minimum_spacing, within_spacing, t_sp, searched_from) -> tuple:
