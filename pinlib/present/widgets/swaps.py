@@ -323,7 +323,7 @@ class SwapExplorer(_Panel):
         """After a substitution: chart the position's first bus with a status change."""
         buses = _values(self.chart_bus.options)
         changed = [] if self.changes is None else \
-            [c.path.split("/")[0] for c in self.changes.status_changes]
+            [self._group_of(c.path) for c in self.changes.status_changes]
         pick = next((b for b in buses if b in changed), None)
         if pick is not None and pick != self.chart_bus.value:
             with self._hold():
