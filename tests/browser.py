@@ -444,6 +444,37 @@ _JS = {
             if (w > room + 1)
               problems.push(`${describe(el)}: its choice "${text}" is cut to ` +
                             `${Math.round(room)} px (its first word needs ${Math.round(w)} px)`);
+            // cut further on: its whole text must be shown just under it (a choice line)
+            const whole = ctx.measureText(text).width;
+            if (whole > room + 1) {
+              const sr = select.getBoundingClientRect();
+              const shown = [...root.querySelectorAll('.pinlib-choice')].some(c => {
+                const cr = c.getBoundingClientRect();
+                return isShown(c) && clean(c.textContent) === text &&
+                       cr.top >= sr.bottom - 2 && cr.top <= sr.bottom + 60;
+              });
+              if (!shown)
+                problems.push(`${describe(el)}: its choice "${text}" is cut to ` +
+                              `${Math.round(room)} px (${Math.round(whole)} px of text) and ` +
+                              `its whole text is not shown under it`);
+            }
+          }
+          // a list shows each item whole
+          const list = el.querySelector('select[multiple], select[size]');
+          if (list && isShown(list) && list.size > 1) {
+            const ctx = document.createElement('canvas').getContext('2d');
+            const cs = getComputedStyle(list);
+            ctx.font = `${cs.fontWeight} ${cs.fontSize} ${cs.fontFamily}`;
+            const room = list.clientWidth - parseFloat(cs.paddingLeft) -
+                         parseFloat(cs.paddingRight);
+            for (const o of list.options) {
+              const oc = getComputedStyle(o);
+              const w = ctx.measureText(clean(o.text)).width + parseFloat(oc.paddingLeft || 0) +
+                        parseFloat(oc.paddingRight || 0);
+              if (w > room + 1)
+                problems.push(`${describe(el)}: its item "${clean(o.text)}" is cut ` +
+                              `(${Math.round(w)} px of text in ${Math.round(room)} px)`);
+            }
           }
           if (el.classList.contains('widget-toggle-buttons')) {
             const tops = new Set([...el.querySelectorAll('.widget-toggle-button')]

@@ -7,8 +7,9 @@ with the file browser side panel open and run with Run All; then, at 1400 × 900
 * every labelled control is shown with a non-zero size (those on a tab that is not
   selected excepted), and the controls the issue named are there;
 * no widget box scrolls or clips sideways, nothing ends past the notebook's right edge,
-  no label, value or choice is cut, toggle buttons stay on one row, and focusing a
-  field scrolls nothing sideways;
+  no label, value or choice is cut (a dropdown's choice longer than it shows is shown
+  whole on the line under it; a list shows each item whole), toggle buttons stay on one
+  row, and focusing a field scrolls nothing sideways;
 * no text of a chart (SVG) ends past the chart's edge, overprints another or says
   ``undefined``/``NaN``;
 * no cell shows an error, a traceback or a widget's text repr, and no widget shows an
@@ -232,6 +233,15 @@ _PAGE = """<!doctype html><html><body style="margin:0;font:13px sans-serif">
     <button class="widget-toggle-button mod-active" style="width:50px">0</button>
     <button class="widget-toggle-button" style="width:50px">1</button>
     <button class="widget-toggle-button" style="width:50px">2</button></div></div>
+  <div class="jupyter-widgets widget-inline-hbox widget-dropdown" style="display:flex">
+   <label class="widget-label" style="width:80px;flex:none">Controller</label>
+   <select style="width:150px;padding:0"><option>mcu-3v3 — Microcontroller, 3.3 V</option>
+   </select></div>
+  {choice}
+  <div class="jupyter-widgets widget-inline-hbox widget-select" style="display:flex">
+   <label class="widget-label" style="width:80px;flex:none">Receivers</label>
+   <select size="3" style="width:{list}px;padding:0">
+    <option>U2 display-controller-spi sclk</option></select></div>
   <div class="jupyter-widgets widget-html"><div class="widget-html-content">
    <svg width="200" height="80"><text x="10" y="20">Bus capacitance</text>
     <text x="{x}" y="50">{label}</text><text x="10" y="70">{undefined}</text></svg>
@@ -245,10 +255,12 @@ _PAGE = """<!doctype html><html><body style="margin:0;font:13px sans-serif">
 _BAD = dict(hidden="display:none", wide=400, buttons=150, x=150,
             label="design: 1.8 kOhm at 60.4 pF", undefined="undefined (VIL to VIH)",
             fail=_FAIL, error="a bare number has no unit", mime="application/vnd.jupyter.stderr",
-            output="Traceback (most recent call last): ...")
+            output="Traceback (most recent call last): ...", choice="", list=90)
 _GOOD = dict(hidden="", wide=280, buttons=280, x=10, label="design: 1.8 kOhm",
              undefined="VIL to VIH", fail="rgb(0, 0, 0)", error="recorded", mime="text/plain",
-             output="<pre>pass 1800.0</pre>")
+             output="<pre>pass 1800.0</pre>", list=280,
+             choice='<div class="jupyter-widgets widget-html"><div class="widget-html-content">'
+                    '<div class="pinlib-choice">mcu-3v3 — Microcontroller, 3.3 V</div></div></div>')
 
 
 @pytest.mark.parametrize("bad", [True, False], ids=["problems", "control"])
@@ -273,6 +285,8 @@ def test_the_detectors_find_each_problem_and_only_those(chromium, bad):
         text = "\n".join(sideways)
         assert "clips its content sideways" in text, text
         assert "its buttons wrap onto" in text, text
+        assert "its whole text is not shown under it" in text, text  # a cut dropdown
+        assert 'its item "U2 display-controller-spi sclk" is cut' in text, text  # a list
         assert any("past the chart's edge" in p for p in svg), svg
         assert any("undefined" in p for p in svg), svg
         assert len(outputs) == 1 and "Traceback" in outputs[0], outputs
@@ -463,6 +477,36 @@ def test_a_bad_quantity_shows_an_error_beside_its_field(wb):
         if after != before:
             failures.append(f"{what}: the charts or tables changed")
     assert not failures, "\n  ".join(["bad quantities:"] + failures)
+
+
+def test_save_as_an_existing_file_asks_before_overwriting(wb, lab):
+    if not wb.spec.name.startswith("01"):
+        pytest.skip("workbook 01 saves a design")
+    _, folder = lab
+    target = folder / "designs" / "demo-board.toml"
+    kept = target.read_bytes()
+    try:
+        wb.type_into("Save as", "designs/demo-board.toml", submit=False)
+        loc, info = wb.shown_control("Save")
+        loc.click()
+        wb.settle()
+        wb.screenshot("save-refused")
+        assert target.read_bytes() == kept, "Save overwrote an existing design"
+        marks = [m for m in wb.error_marks() if m["shown"]]
+        said = [m for m in marks if "designs/demo-board.toml exists" in m["text"]]
+        assert said and near(said[0], info, below=90), [m["text"] for m in marks]
+        box = wb.page.locator(".widget-checkbox", has_text="overwrite demo-board.toml")
+        assert box.count() == 1 and box.first.is_visible(), "no 'overwrite' box naming it"
+        # ticked, a second press replaces the file (atomically, as any save)
+        box.first.locator("input[type=checkbox]").check()
+        wb.settle()
+        loc.click()
+        wb.settle()
+        assert target.read_bytes() != kept and b"BusBuilder" in target.read_bytes()
+        again = wb.page.locator(".widget-checkbox", has_text="overwrite an existing file")
+        assert not again.first.locator("input[type=checkbox]").is_checked()  # asked again
+    finally:
+        target.write_bytes(kept)  # the later workbooks read this design
 
 
 def test_no_request_leaves_loopback(wb, chromium):

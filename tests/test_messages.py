@@ -2762,6 +2762,39 @@ def _(env):
     return b.save_error.value
 
 
+@case("SAVE_WOULD_OVERWRITE", lambda: M.SAVE_WOULD_OVERWRITE.format(file="kept.toml"))
+def _(env):
+    env.monkeypatch.chdir(env.tmp)
+    env.write("kept.toml", "# a design kept\n")
+    return _fails(lambda e: _builder(e).save("kept.toml"), env)
+
+
+@case("SAVE_OVERWRITE_HINT", M.SAVE_OVERWRITE_HINT.format(name="kept.toml"))
+def _(env):
+    env.monkeypatch.chdir(env.tmp)
+    env.write("kept.toml", "# a design kept\n")
+    b = _builder(env)
+    b.save_path.value = "kept.toml"
+    b._save_clicked()  # the button: the refusal and how to overwrite, beside the box
+    return b.save_error.value.replace("&#x27;", "'")
+
+
+@case("SAVE_TARGET_IS_FOLDER", lambda: M.SAVE_TARGET_IS_FOLDER.format(file="boards"))
+def _(env):
+    env.monkeypatch.chdir(env.tmp)
+    (env.tmp / "boards").mkdir()
+    return _fails(lambda e: _builder(e).save("boards", overwrite=True), env)
+
+
+@case("DESIGN_PATH_NEEDED")
+def _(env):
+    x = _widgets().SwapExplorer(Path(__file__).resolve().parents[1] / "workbooks" / "designs"
+                                / "demo-board.toml")
+    x.path_box.value = ""
+    x._load_clicked()  # the Load button: the refusal is shown beside the box
+    return x.path_error.value
+
+
 @case("NOT_AN_INPUT_PIN")
 def _(env):
     return _fails(lambda e: _line_explorer(e).add_receiver("eeprom-i2c", "nowhere"), env)

@@ -34,7 +34,7 @@ pytest.importorskip("ipywidgets")
 pytest.importorskip("altair")
 pytest.importorskip("vl_convert")
 
-from pinlib.core.errors import DesignError, InputError  # noqa: E402
+from pinlib.core.errors import DesignError, InputError, WriteError  # noqa: E402
 from pinlib.core.tomlfile import tomllib  # noqa: E402
 from pinlib.engines.dispatch import check_design, check_file  # noqa: E402
 from pinlib.library import load_library  # noqa: E402
@@ -248,6 +248,19 @@ def test_bench_panel_takes_the_probe_out_of_a_measured_rise(builder):
     builder.set(rise_measured=0.0)
 
 
+def test_bench_messages_write_numbers_with_si_prefixes(library):
+    import re
+
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.rise_measured.text.value = "5 ms"  # above the field's 1 ms
+    refused = b.rise_measured.error_html.value
+    assert "from 0 ns to 1 ms" in refused and not re.search(r"\de[+-]\d", refused)
+    b.rise_measured.text.value = "5 ns"  # faster than the probe alone allows
+    shown = b.bench_html.value
+    assert "faster than the probe" in shown and not re.search(r"\de[+-]\d", shown)
+    assert re.search(r"k·Rp·C_probe = [\d.]+ ns", shown), shown
+
+
 def test_saved_design_loads_and_checks_the_same(builder, tmp_path, library):
     builder.set(pullup="auto", length=0.14, extra_capacitance=12e-12)
     path = builder.save(tmp_path / "board.toml")
@@ -288,6 +301,40 @@ def test_save_refuses_an_invalid_design_and_writes_nothing(library, tmp_path, mo
     assert "file name" in b.save_error.value
 
 
+def test_save_never_overwrites_an_existing_file_unless_ticked(library, tmp_path):
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    target = tmp_path / "demo-board.toml"
+    target.write_text("# a commented design\n", encoding="utf-8")
+    with pytest.raises(WriteError, match="exists"):
+        b.save(target)
+    assert target.read_text(encoding="utf-8") == "# a commented design\n"
+    # the button: refused beside the box, naming the file; the box offers to overwrite it
+    b.save_path.value = str(target)
+    b.save_button.click()
+    assert target.read_text(encoding="utf-8") == "# a commented design\n"
+    assert str(target) in b.save_error.value and "overwrite" in b.save_error.value
+    assert b.save_overwrite.description == "overwrite demo-board.toml"
+    # ticked: replaced (atomically), and the consent is spent
+    b.save_overwrite.value = True
+    b.save_button.click()
+    assert target.read_text(encoding="utf-8") == b.design_text(relative_to=tmp_path)
+    assert "saved" in b.save_error.value and not b.save_overwrite.value
+    # a consent given for one name does not carry to another
+    other = tmp_path / "other.toml"
+    other.write_text("keep", encoding="utf-8")
+    b.save_overwrite.value = True
+    b.save_path.value = str(other)
+    assert not b.save_overwrite.value
+    b.save_button.click()
+    assert other.read_text(encoding="utf-8") == "keep"
+    # a folder is not a file to save into
+    b.save_overwrite.value = True
+    b.save_path.value = str(tmp_path)
+    b.save_overwrite.value = True
+    b.save_button.click()
+    assert "is a folder" in b.save_error.value
+
+
 # =========================================================================== LineExplorer
 
 
@@ -317,6 +364,22 @@ def test_line_figures_are_the_engines_for_its_design(line, library):
     _same_result(line.result, line.text, library)
     assert line.edge_data.operating == (line.figures["load_capacitance"].value,
                                         line.figures["edge_rise_time"].value)
+
+
+def test_line_chart_point_is_the_checks_figure_in_daisy_chain_placement(library):
+    # two receivers along a route: the figure is the slowest receiver's rise, and the
+    # chart's cross (captioned "the figure the checks use") must be that figure
+    x = LineExplorer(library, driver=("mcu-3v3", "sclk"),
+                     receivers=[("display-controller-spi", "sclk"),
+                                ("display-controller-spi", "sclk")], length=0.28)
+    for placement in ("far end", "daisy chain"):
+        x.set(placement=placement, series="auto")
+        assert x.error is None
+        assert x.edge_data.operating == (x.figures["load_capacitance"].value,
+                                         x.figures["edge_rise_time"].value), placement
+        assert x.edge_data.operating_fall == x.figures["edge_fall_time"].value
+        assert "the figure the checks use" in x.edge_data.subtitle
+    assert x.edge_data.operating_label.startswith("slowest receiver on this line")
 
 
 def test_line_auto_termination_is_z0_minus_r_out(line, library):
@@ -384,6 +447,23 @@ def test_line_receivers_and_pins(library):
 @pytest.fixture(scope="module")
 def budget():
     return SpiBudget(DEMO, bus="display")
+
+
+def test_spi_budget_chart_gives_the_checks_margins_at_their_corner():
+    from pinlib.core.quantity import format_si
+
+    b = SpiBudget(DEMO, bus="flash")
+    b.set(clock=30e6)
+    notes = {d["path"]: d["text"] for layer in b.chart.data() for d in layer if "text" in d}
+    at_corner = [c for c in b.bus_result.checks if (c.details or {}).get("corner")
+                 and f"{c.id} {c.subject}" in notes]  # the budget's requirements
+    assert {c.id for c in at_corner} >= {"copi-setup", "cipo-setup"}
+    for c in at_corner:
+        # the checks table's figure (value minus limit at the check's worst corner)
+        m = c.value - c.limit
+        shown = f"worst corner {'+' if m >= 0 else ''}{format_si(m, 's')}"
+        assert shown in notes[f"{c.id} {c.subject}"], (c.id, notes)
+    assert "worst corner" in str(b.chart.spec["title"])
 
 
 def test_spi_budget_at_the_saved_clock_is_check_file(budget):
@@ -547,6 +627,72 @@ def test_swap_candidates_ranking(explorer, monkeypatch):
     assert "pinlib.studies.candidates" in explorer.candidates_note.value
 
 
+def _listed(x) -> list[str]:
+    """What `pinlib swap` lists for the explorer's substitutions (status changes with
+    their values and limits, moved figures each quantity once), as the widget must show it
+    (HTML-escaped)."""
+    import html as _html
+
+    from pinlib.core.labels import figure_label
+    from pinlib.studies.compare import format_figure
+    from pinlib.studies.compare.changes import shown_changes
+
+    out = []
+    for c in x.changes.status_changes:
+        out.append(_html.escape(c.values_text(), quote=False))
+    for c in shown_changes(x.changes.figure_changes):
+        out.append(_html.escape(f"{figure_label(c.name)}", quote=False))
+        out.append(_html.escape(f"{format_figure(c.old, c.unit)} → "
+                                f"{format_figure(c.new, c.unit)}", quote=False))
+    return out
+
+
+def test_swap_change_list_shows_what_pinlib_swap_lists():
+    x = SwapExplorer(DEMO)
+    assert x.apply_swap("Q1", "i2c-repeater") == []
+    html = x.changes_html.value
+    couplings = [c for c in x.changes.status_changes if "<-" in c.path]
+    assert couplings  # the crosstalk checks of sensors.scl<-display.sclk changed status
+    assert html.count("<li title=") == len(x.changes.status_changes)  # each listed once
+    assert "sensors.scl&lt;-display.sclk" in html and "Crosstalk" in html
+    missing = [t for t in _listed(x) if t not in html]
+    assert not missing
+    # a check that appeared shows its value, not only its limit
+    offset = next(c for c in x.changes.status_changes if c.check == "bridge-offset")
+    assert offset.old is None and "600 mV, limit 940 mV" in html  # pinlib swap's text
+    # the default substitution: the coupling's moved figure is listed too
+    x.reset()
+    assert x.apply_swap("U4", "io-expander-i2c") == []
+    assert "Level held low, with noise" in x.changes_html.value
+    assert not [t for t in _listed(x) if t not in x.changes_html.value]
+
+
+def test_swap_device_list_names_the_segments_of_a_bridging_part(explorer):
+    labels = dict((v, k) for k, v in explorer.ref.options)
+    assert "(sensors/main-3v3, sensors/sensor-1v8)" in labels["Q1"]
+    assert labels["U4"].endswith("(sensors)")
+
+
+def test_swap_load_refuses_an_empty_path_and_says_when_results_are_old(explorer, tmp_path):
+    explorer.reset()
+    explorer.path_box.value = ""
+    explorer.load_button.click()
+    assert "a design file path is needed" in explorer.path_error.value
+    assert "directory" not in explorer.path_error.value
+    assert "Not recomputed" in explorer.held_html.value
+    explorer.path_box.value = str(tmp_path / "no-such.toml")
+    explorer.load_button.click()
+    assert "file not found" in explorer.path_error.value
+    assert "Not recomputed" in explorer.held_html.value and "no-such.toml" in \
+        explorer.held_html.value
+    # choosing another device recomputes the old design: the notice stays
+    explorer.ref.value = "U4"
+    assert "Not recomputed" in explorer.held_html.value
+    explorer.path_box.value = str(DEMO)
+    explorer.load_button.click()
+    assert explorer.path_error.value == "" and explorer.held_html.value == ""
+
+
 def test_find_file_from_a_subfolder(monkeypatch):
     monkeypatch.chdir(WORKBOOKS)
     assert find_file("workbooks/designs/demo-board.toml").resolve() == DEMO.resolve()
@@ -692,3 +838,42 @@ def test_crosstalk_explorer_is_the_engines_coupling():
     assert x.updates == 1 and "held low" not in x.wave_chart.svg
     with pytest.raises(InputError):
         x.set(spacing=-1.0)
+
+
+def test_crosstalk_chart_shades_by_the_rule_the_checks_use():
+    from pinlib.widgets import CrosstalkExplorer
+
+    x = CrosstalkExplorer(DEMO)
+    x.set(length=0.5)  # a long run: the noise crosses VIL at close spacings
+    d = x.sweep
+    assert d.t_sp and d.minimum_spacing is not None
+    above = [s for s, p in zip(d.spacing, d.peak, strict=True) if p > d.allowed]
+    assert above  # the curve stands above the band there ...
+    assert d.within_spacing > max(above)
+    # ... and every such point lies in the region drawn as a warning, from the minimum
+    # spacing (where no check fails) to where the noise is within the thresholds
+    assert all(d.minimum_spacing * (1 - 1e-9) <= s for s in above)
+    spec = str(x.noise_chart.spec)
+    assert "a warning, not a failure" in spec and "no check fails" in spec
+    assert "allowed noise" not in spec
+    failing = [c for c in x.result.checks if c.status == "fail"]
+    assert not failing  # at the design's 250 µm: the rule says no check fails
+    # the x axis: ticks 1, 2 and 5 of each decade (400 and 500 ran together)
+    ticks = [v for layer in x.noise_chart.spec["layer"]
+             for v in (layer.get("encoding", {}).get("x", {}).get("axis", {}) or {})
+             .get("values", [])]
+    assert ticks and set(ticks) <= {10.0, 20.0, 50.0, 100.0, 200.0, 500.0, 1000.0, 2000.0}
+
+
+def test_crosstalk_explorer_names_the_designs_aggressor_and_its_sliders_units():
+    from pinlib.widgets import CrosstalkExplorer
+
+    x = CrosstalkExplorer(DEMO)
+    x.set(edge_time=1e-9)
+    assert "sensors.scl beside display.sclk, its edge set to 1 ns" in x.status_html.value
+    assert "edge-1" not in x.status_html.value
+    with pytest.raises(InputError) as info:
+        x.set(spacing=30e-6)
+    text = info.value.message
+    assert "30 µm" in text and "50 µm" in text and "2 mm" in text
+    assert "Ω" not in text and "E24" not in text

@@ -312,3 +312,42 @@ def test_change_list_is_grouped_by_bus_status_changes_first():
     assert "Rise time tr (30–70 %), SDA" not in html and "Rise time tr" in html
     # no part on the bus adds a pull-up: the effective pull-up is the resistor, shown once
     assert "Pull-up resistor" in html and "Pull-up, effective" not in html
+
+
+# =========================================================================== long choices
+
+
+def _choice_lines(panel) -> list[str]:
+    return [html.unescape(w.value) for w in _tree(panel.widget)
+            if isinstance(w, W.HTML) and "pinlib-choice" in w.value]
+
+
+def _label(dropdown) -> str:
+    return dict((v, k) for k, v in dropdown.options)[dropdown.value]
+
+
+def test_a_part_choice_is_shown_whole_under_its_dropdown(panels):
+    # a closed dropdown in the control column shows ~30 characters of a part's label
+    # ("mcu-3v3 — Microcontroller, 3"): the whole label is on a line under it
+    b = panels["BusBuilder"]
+    for dd in (b.controller, b.pick):
+        assert any(_label(dd) in line for line in _choice_lines(b)), _label(dd)
+        assert dd.tooltip == _label(dd)
+    other = next(v for _, v in b.pick.options if v != b.pick.value)
+    b.pick.value = other
+    assert any(_label(b.pick) in line for line in _choice_lines(b))
+    le = panels["LineExplorer"]
+    for dd in (le.driver_part, le.pick):
+        assert any(_label(dd) in line for line in _choice_lines(le)), _label(dd)
+    x = panels["SwapExplorer"]
+    x.ref.value = "Q1"
+    assert any("(sensors/main-3v3, sensors/sensor-1v8)" in line for line in _choice_lines(x))
+    assert any(_label(x.new_part) in line for line in _choice_lines(x))
+
+
+def test_a_list_of_placed_parts_has_the_column_to_itself(panels):
+    # a Remove button beside the list left 136 px for "U2  display-controller-spi: sclk"
+    for name in ("BusBuilder", "LineExplorer"):
+        p = panels[name]
+        row = next(w for w in _tree(p.widget) if p.placed in getattr(w, "children", ()))
+        assert p.remove_button not in row.children, name

@@ -145,6 +145,19 @@ def _fmt(x, unit):
     return format_si(x, unit) if explained() else UNSTATED
 
 
+def case_edge_times(c, receivers=()) -> tuple:
+    """One driver's edge times as the line's figures read them (``edge_rise_time`` and
+    ``edge_fall_time`` are the worst of these over the drivers): the slow corner's rise and
+    fall at the far end, or on a route the slowest at the receivers' points (those of
+    ``receivers``, else of every pin it loads). [s, s]"""
+    if c.points is None:
+        return c.rise.t_edge, c.fall.t_edge
+    others = [c.net.node(r) for r in c.load_refs] or [c.net.node(c.driver.ref)]
+    sensed = [c.net.node(r.ref) for r in receivers if r.ref != c.driver.ref] or others
+    return (float(np.max(c.points["rise"].edge_times(sensed))),
+            float(np.max(c.points["fall"].edge_times(sensed))))
+
+
 def _figures_of(cases: dict, receivers=()) -> dict:
     """The worst edge figures over every driver; on a route the edge times at the points
     of the receivers (``receivers``: on CIPO the controller only, so the cost stays linear
@@ -152,17 +165,14 @@ def _figures_of(cases: dict, receivers=()) -> dict:
     of one solve at once."""
     rise_t, fall_t, over, under = [], [], [], []
     for c in cases.values():
+        rise, fall = case_edge_times(c, receivers)
+        rise_t.append(rise)
+        fall_t.append(fall)
         if c.points is None:
-            rise_t.append(c.rise.t_edge)
-            fall_t.append(c.fall.t_edge)
             over.append(c.si_wave("rise").overshoot)
             under.append(c.si_wave("fall").undershoot)
             continue
         others = [c.net.node(r) for r in c.load_refs] or [c.net.node(c.driver.ref)]
-        sensed = [c.net.node(r.ref) for r in receivers if r.ref != c.driver.ref] or others
-        rise, fall = c.points["rise"], c.points["fall"]
-        rise_t.append(float(np.max(rise.edge_times(sensed))))
-        fall_t.append(float(np.max(fall.edge_times(sensed))))
         si = c.points if c.fast_points is None else c.fast_points  # the fast corner's
         over.append(float(np.max(si["rise"].extremes()[0][others])) - si["rise"].v_to)
         under.append(float(np.max(si["fall"].extremes()[1][others])) + si["fall"].v_to)

@@ -7,6 +7,7 @@ import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.core.quantity import format_si
 from pinlib.physics.pullup.inputs import _arr, _non_negative, _out, _positive
 from pinlib.physics.rc import RISE_30_70
 
@@ -258,5 +259,5 @@ def capacitance_from_rise(t_measured, rp, c_probe, *, lo=0.3, hi=0.7):
         raise InputError(M.RISE_FASTER_THAN_PROBE,
                          field="t_measured", value=t_measured,
                          expected=f"a rise longer than k·Rp·C_probe "
-                                  f"= {float(np.min(k * rp * c_probe)):.3g} s")
+                                  f"= {format_si(float(np.min(k * rp * c_probe)), 's')}")
     return _out(cb), _out(k * rp * cb)

@@ -40,6 +40,7 @@ if TYPE_CHECKING:  # pragma: no cover - typing only
 
 def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None = None,
                   status: Mapping[str, str] | None = None,
+                  worst: Mapping[str, tuple] | None = None,
                   available_label: str = "available (half period)",
                   title: str | None = "Timing budget", subtitle: str | None = None,
                   width: int = _WIDTH, height: int | None = None) -> alt.LayerChart:
@@ -58,6 +59,10 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
     status : dict of str to str, optional
         ``"pass"``, ``"warn"`` or ``"fail"`` per path (the colour of the margin);
         default from the sign of the margin. [1]
+    worst : dict of str to (float, str, ...), optional
+        For a path whose check was taken at a worse corner of the tolerances than the
+        bars: that margin and status, written after the bar's (``margin +5.51 ns;
+        worst corner +5.49 ns``) and colouring it. [s, 1]
     available_label : str, optional
         Legend entry of the tick. [1]
     title, subtitle : str, optional
@@ -75,6 +80,8 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
     """
     items, paths, comps = _rows(rows)
     avail, marg, stat = _per_path(paths, available, margins, status)
+    worst = {str(p): w for p, w in (worst or {}).items() if str(p) in marg}
+    stat = {p: worst[p][1] if p in worst else s for p, s in stat.items()}
 
     # Display prefix from the longest stack or available time (display only).
     ends = [sum(d for p, _, d in items if p == q and d > 0) for q in paths]
@@ -96,8 +103,8 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
     ticks = ([{"path": p, "t": _num(v * fx), "series": available_label}
               for p, v in avail.items()] if avail else None)
     names = [{"path": p} for p in paths]
-    notes = ([{"path": p, "text": f"margin {'+' if m >= 0 else ''}{format_si(m, 's')}",
-               "series": stat[p]} for p, m in marg.items()] if marg else None)
+    notes = ([{"path": p, "text": _margin_text(m, worst.get(p)), "series": stat[p]}
+              for p, m in marg.items()] if marg else None)
     known = _reuse(("timing_budget", x_title, tuple(paths), tuple(comps), tuple(fixed),
                     available_label, title, subtitle, width, plot_h),
                    [bars] + ([ticks] if ticks else []) + [names] + ([notes] if notes else []))
@@ -107,6 +114,16 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
     layers = _layers(bars, ticks, names, notes, x_title, paths, comps, fixed,
                      fixed_colours, plot_h / n_rows, width)
     return _titled(_alt().layer(*layers), title, subtitle, width, plot_h)
+
+
+def _signed(m: float) -> str:
+    return f"{'+' if m >= 0 else ''}{format_si(m, 's')}"
+
+
+def _margin_text(m: float, worst: tuple | None) -> str:
+    """A bar's margin, and its check's at a worse corner of the tolerances when given."""
+    text = f"margin {_signed(m)}"
+    return text if worst is None else f"{text}; worst corner {_signed(worst[0])}"
 
 
 def _rows(rows) -> tuple[list, list[str], list[str]]:

@@ -22,6 +22,7 @@ from pinlib.present.charts.frame import (
     _title,
     _titled,
     display_scale,
+    log_ticks,
 )
 from pinlib.present.charts.render import _alt, _data
 from pinlib.present.charts.style import (
@@ -32,6 +33,7 @@ from pinlib.present.charts.style import (
     LIMIT,
     OPERATING,
     REGION,
+    WARN,
 )
 
 if TYPE_CHECKING:  # pragma: no cover - typing only
@@ -39,7 +41,8 @@ if TYPE_CHECKING:  # pragma: no cover - typing only
 
 
 def noise_vs_spacing(spacing, peak, *, allowed, design_spacing, design_peak,
-                     minimum_spacing=None, title: str | None = "Crosstalk against spacing",
+                     minimum_spacing=None, within_spacing=None, t_sp=None,
+                     searched_from=None, title: str | None = "Crosstalk against spacing",
                      subtitle: str | None = None, width: int = _WIDTH,
                      height: int = _HEIGHT) -> alt.LayerChart:
     """Peak noise on the victim against the gap between the traces (log spacing axis).
@@ -51,11 +54,20 @@ def noise_vs_spacing(spacing, peak, *, allowed, design_spacing, design_peak,
         each. [m], [V]
     allowed : float
         The largest excursion that keeps the receivers on their side of VIL and VIH
-        (the allowed region lies below it). [V]
+        (shaded below it). [V]
     design_spacing, design_peak : float
         The design's point. [m], [V]
     minimum_spacing : float, optional
-        The smallest spacing at which every check passes, drawn as a vertical rule. [m]
+        The smallest spacing at which no check fails, drawn as a vertical rule. [m]
+    within_spacing : float, optional
+        The spacing from which the noise stays within ``allowed``.  Where it is above
+        the minimum spacing (a crossing shorter than the input filter's ``t_sp`` only
+        warns), the spacings between the two are shaded as warning. [m]
+    t_sp : float, optional
+        The receivers' input filter, named in the warning's legend entry. [s]
+    searched_from : float, optional
+        The smallest spacing searched: a minimum spacing there is a bound, and its rule
+        says every spacing from it passes. [m]
     """
     alt = _alt()
     s = _array(spacing, "spacing")
@@ -69,37 +81,65 @@ def noise_vs_spacing(spacing, peak, *, allowed, design_spacing, design_peak,
     ok = _keep(s, p, positive=(True, False))
     fx, ux = display_scale(np.append(s[ok], x0), "m", log=True)
     fy, uy = display_scale(np.concatenate([p[ok], [lim, y0]]), "V")
-    region = "allowed noise (VIL, VDD − VIH)"
-    curve = "peak noise"
-    point = f"design: {format_si(y0, 'V')} at {format_si(x0, 'm')}"
-    rule = (None if minimum_spacing is None
-            else f"minimum spacing {format_si(float(minimum_spacing), 'm')}")
-    domain = [region, curve, point] + ([rule] if rule else [])
-    colours = [REGION, BOUND_HIGH, OPERATING] + ([LIMIT] if rule else [])
+    labels = _labels(y0, x0, minimum_spacing, within_spacing, t_sp, searched_from)
+    region, curve, point, rule, warned = labels
+    domain = [region, curve, point] + ([rule] if rule else []) + ([warned] if warned else [])
+    colours = ([REGION, BOUND_HIGH, OPERATING] + ([LIMIT] if rule else [])
+               + ([WARN] if warned else []))
     colour = alt.Color("series:N", scale=_scale_pair(domain, colours),
                        legend=_legend(None, domain, _plot_room(width)))
-    x_title = _title("Spacing, edge to edge", ux)
-    y_title = _title("Peak noise on the victim", uy)
     lo_s, hi_s = float(np.min(np.append(s[ok], x0))), float(np.max(np.append(s[ok], x0)))
-    band = [{"s": _num(x * fx), "lo": 0.0, "hi": _num(lim * fy), "series": region}
-            for x in (lo_s, hi_s)]
+    ticks = log_ticks(lo_s * fx, hi_s * fx)
+
+    def xq(field="s"):
+        return _q(field, _title("Spacing, edge to edge", ux), log=True, pad=True,
+                  ticks=ticks or None)
+
+    def yq(field):
+        return _q(field, _title("Peak noise on the victim", uy), channel="y", pad=True)
+
     rows = [{"s": _num(a * fx), "v": _num(b * fy), "series": curve}
             for a, b in zip(s[ok], p[ok], strict=True)]
     dot = [{"s": _num(x0 * fx), "v": _num(y0 * fy), "series": point}]
-    layers = [
-        alt.Chart(_data(band)).mark_area(opacity=_REGION_OPACITY).encode(
-            x=_q("s", x_title, log=True, pad=True), y=_q("lo", y_title, channel="y", pad=True),
-            y2=alt.Y2("hi:Q"), color=colour),
+    layers = [_area([lo_s, hi_s], 0.0, lim, fx, fy, region, xq(), yq("lo"), colour)]
+    if warned:
+        top = float(np.max(np.append(p[ok], lim)))
+        layers.append(_area([minimum_spacing, within_spacing], lim, top, fx, fy, warned,
+                            xq(), yq("lo"), colour))
+    layers += [
         alt.Chart(_data(rows)).mark_line(strokeWidth=2, point=True).encode(
-            x=_q("s", x_title, log=True, pad=True), y=_q("v", y_title, channel="y", pad=True),
-            color=colour),
+            x=xq(), y=yq("v"), color=colour),
         alt.Chart(_data(dot)).mark_point(shape="diamond", filled=True, size=140,
-                                         opacity=1).encode(
-            x=_q("s", x_title, log=True, pad=True), y=_q("v", y_title, channel="y", pad=True),
-            color=colour),
+                                         opacity=1).encode(x=xq(), y=yq("v"), color=colour),
     ]
     if rule:
         rows_rule = [{"s": _num(float(minimum_spacing) * fx), "series": rule}]
         layers.append(alt.Chart(_data(rows_rule)).mark_rule(strokeDash=[6, 3]).encode(
-            x=_q("s", x_title, log=True, pad=True), color=colour))
+            x=xq(), color=colour))
     return _titled(alt.layer(*layers), title, subtitle, width, height)
+
+
+def _area(xs, lo: float, hi: float, fx: float, fy: float, series: str, x, y, colour):
+    """A shaded region from ``lo`` to ``hi`` over the spacings ``xs`` (SI units)."""
+    alt = _alt()
+    rows = [{"s": _num(float(v) * fx), "lo": _num(lo * fy), "hi": _num(hi * fy),
+             "series": series} for v in xs]
+    return alt.Chart(_data(rows)).mark_area(opacity=_REGION_OPACITY).encode(
+        x=x, y=y, y2=alt.Y2("hi:Q"), color=colour)
+
+
+def _labels(y0, x0, minimum_spacing, within_spacing, t_sp, searched_from) -> tuple:
+    """The legend entries: the band, the curve, the design's point, the minimum spacing's
+    rule (None without one) and the warning region (None where there is none)."""
+    region = "noise within VIL, VDD − VIH"
+    point = f"design: {format_si(y0, 'V')} at {format_si(x0, 'm')}"
+    rule = warned = None
+    if minimum_spacing is not None:
+        ms = float(minimum_spacing)
+        bound = searched_from is not None and ms <= float(searched_from) * (1 + 1e-9)
+        rule = (f"no check fails from {format_si(ms, 'm')} (every spacing searched)"
+                if bound else f"minimum spacing {format_si(ms, 'm')}: no check fails")
+        if within_spacing is not None and float(within_spacing) > ms * 1.02:
+            why = (f" for less than tSP {format_si(float(t_sp), 's')}" if t_sp else "")
+            warned = f"beyond a threshold{why}: a warning, not a failure"
+    return region, "peak noise", point, rule, warned

@@ -142,8 +142,9 @@ def _legend(title: str | None, labels: Sequence[str] = (), room: float = _WIDTH,
     return alt.Legend(**props)
 
 
-def _axis(title: str, *, flush: bool = True):
-    """A quantitative axis; ``flush`` for a horizontal one."""
+def _axis(title: str, *, flush: bool = True, values=None):
+    """A quantitative axis; ``flush`` for a horizontal one; ``values`` the ticks, when
+    given (Vega's own otherwise)."""
     alt = _alt()
     # "~r": decimal notation, trailing zeros off (no "1.4e+2", no thousands commas);
     # Vega sets the precision from the tick step.  On a horizontal axis, labels near an
@@ -153,10 +154,27 @@ def _axis(title: str, *, flush: bool = True):
     props = dict(title=title, format="~r", labelOverlap=True)
     if flush:
         props.update(labelFlush=_FLUSH_PX, labelBound=True)
+    if values is not None:
+        props["values"] = [float(v) for v in values]
     return alt.Axis(**props)
 
 
-def _q(field: str, title: str, *, log: bool = False, channel: str = "x", pad: bool = False):
+def log_ticks(lo: float, hi: float) -> list[float]:
+    """Ticks 1, 2 and 5 of each decade between ``lo`` and ``hi`` (display units): a log
+    axis whose own ticks (2, 3, 4, 5 of a decade) run their labels together."""
+    if not (lo > 0 and hi >= lo and math.isfinite(hi)):
+        return []
+    out = []
+    for d in range(math.floor(math.log10(lo)) - 1, math.ceil(math.log10(hi)) + 1):
+        for m in (1.0, 2.0, 5.0):
+            v = float(f"{m * 10.0 ** d:.12g}")
+            if lo * (1 - 1e-9) <= v <= hi * (1 + 1e-9):
+                out.append(v)
+    return out
+
+
+def _q(field: str, title: str, *, log: bool = False, channel: str = "x", pad: bool = False,
+       ticks=None):
     """A quantitative position channel; ``pad`` keeps the outermost values ``_PAD_PX``
     inside the frame (a limit line is never drawn on the frame itself)."""
     alt = _alt()
@@ -169,7 +187,8 @@ def _q(field: str, title: str, *, log: bool = False, channel: str = "x", pad: bo
             props["zero"] = False
     scale = alt.Scale(**props) if props else alt.Undefined
     cls = alt.X if channel == "x" else alt.Y
-    return cls(f"{field}:Q", scale=scale, axis=_axis(title, flush=channel == "x"))
+    return cls(f"{field}:Q", scale=scale,
+               axis=_axis(title, flush=channel == "x", values=ticks))
 
 
 def _titled(chart, title: str | None, subtitle: str | None, width: int, height: int):

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+from dataclasses import field
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
@@ -33,6 +34,12 @@ class TimingBudgetData:
         Each path's check status at the design's warning margin. [1]
     sources : dict of str to str
         The source of each path's requirement. [1]
+    worst : dict of str to (float, str, str)
+        For a path whose check the engine took at a corner of the bus's tolerances worse
+        than the board as designed (:func:`pinlib.engines.ppworst.at_worst_corners`):
+        the check's margin there (its value minus its limit, the figure of the checks
+        table), its status and the corner. The bars, ``margins`` and ``status`` are the
+        board as designed. [s, 1, 1]
     """
 
     bus: str
@@ -43,6 +50,7 @@ class TimingBudgetData:
     margins: dict
     status: dict
     sources: dict
+    worst: dict = field(default_factory=dict)
 
 
 # =========================================================================== SPI budget
@@ -102,10 +110,11 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
     (:func:`pinlib.model.result.check_min` at the design's warning margin).
     """
     _require_protocol(bus, ("spi",), "a timing budget")
+    checks = _corner_checks(analysis)
     analysis = workings(bus, design, analysis)
     clock = float(bus.clock)
     period = 1.0 / clock
-    rows, avail, margins, status, sources = [], {}, {}, {}, {}
+    rows, avail, margins, status, sources, worst = [], {}, {}, {}, {}, {}
     for term in analysis.terms:
         path = f"{term.id} {term.subject}"
         lead = term.parts.get("lead")
@@ -136,4 +145,19 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
                         term.source, "", warn_margin=design.warn_margin)
         status[path] = chk.status
         sources[path] = term.source or "not recorded by the part: taken as 0"
-    return TimingBudgetData(bus.id, clock, period, rows, avail, margins, status, sources)
+        c = checks.get((term.id, term.subject))
+        if c is not None:
+            worst[path] = (float(c.value) - float(c.limit), c.status, c.details["corner"])
+    return TimingBudgetData(bus.id, clock, period, rows, avail, margins, status, sources,
+                            worst)
+
+
+def _corner_checks(result) -> dict:
+    """The checks of a bus's result taken at a corner of its tolerances (their
+    ``details["corner"]``), by (id, subject); none when ``result`` is not a result."""
+    out = {}
+    for c in getattr(result, "checks", None) or ():
+        corner = (c.details or {}).get("corner")
+        if corner and isinstance(c.value, (int, float)) and isinstance(c.limit, (int, float)):
+            out[(c.id, c.subject)] = c
+    return out

@@ -35,6 +35,14 @@ class NoiseSweep:
     excursion that keeps every receiver on its side of VIL (held low) and VIH (held
     high) [V]; the design's ``design_spacing`` and ``design_peak``; ``minimum_spacing``
     (None where none passes) [m]; ``length`` [m].
+
+    The minimum spacing is where no check fails: a crossing of VIL or VIH shorter than
+    the receivers' input filter ``t_sp`` [s] (None: they need not filter) only warns, so
+    the noise may stand above ``allowed`` there.  ``within_spacing`` [m] is the spacing
+    from which the swept noise stays within ``allowed`` (interpolated on the log-spaced
+    sweep; ``spacing[0]`` where it always does, None where it never does), and
+    ``searched_from`` [m] the smallest spacing searched (a minimum spacing there is a
+    bound: every spacing searched passes).
     """
 
     spacing: np.ndarray
@@ -44,6 +52,9 @@ class NoiseSweep:
     design_peak: float
     minimum_spacing: float | None
     length: float
+    within_spacing: float | None = None
+    t_sp: float | None = None
+    searched_from: float = 0.0
 
 
 def noise_vs_spacing_data(result) -> NoiseSweep:
@@ -60,7 +71,22 @@ def noise_vs_spacing_data(result) -> NoiseSweep:
              if x is not None and (("high", e) in w.noise)]
     allowed = min(lows + highs)
     return NoiseSweep(spacing, peak, float(allowed), w.coupling.spacing,
-                      _excursion(w.noise, v), w.minimum_spacing, w.coupling.length)
+                      _excursion(w.noise, v), w.minimum_spacing, w.coupling.length,
+                      _within_from(spacing, peak, float(allowed)), v.t_sp,
+                      float(w.spacing_range[0]))
+
+
+def _within_from(spacing: np.ndarray, peak: np.ndarray, allowed: float) -> float | None:
+    """The spacing from which every swept peak is within ``allowed``: between the last
+    point beyond it and the next, where the peak (log-interpolated in spacing) equals it."""
+    beyond = np.flatnonzero(peak > allowed)
+    if beyond.size == 0:
+        return float(spacing[0]) if spacing.size else None
+    k = int(beyond[-1])
+    if k + 1 >= spacing.size:
+        return None
+    s0, s1, p0, p1 = np.log(spacing[k]), np.log(spacing[k + 1]), peak[k], peak[k + 1]
+    return float(np.exp(s0 + (s1 - s0) * (p0 - allowed) / (p0 - p1)))
 
 
 @value_class(frozen=True)

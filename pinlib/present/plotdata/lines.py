@@ -9,6 +9,7 @@ import numpy as np
 
 from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
+from pinlib.engines.pushline.analysis import case_edge_times
 from pinlib.model.design import Bus, Design
 from pinlib.physics import driver as drv
 from pinlib.present.plotdata.common import (
@@ -40,10 +41,12 @@ class EdgeLoadData:
         the curve it belongs to. [F, s, 1]
     operating : tuple of (float, float)
         The engine's operating point: the line's load (trace and far-end pins,
-        ``load_capacitance``) and the 10–90 % rise at the far end of the real line (the
-        line engine's waveform, ``edge_rise_time``). [F, s]
+        ``load_capacitance``) and the 10–90 % rise of the real line as its figure
+        ``edge_rise_time`` reads it (the line engine's waveform at the far end, or on a
+        route at the slowest receiver's point;
+        :func:`pinlib.engines.pushline.analysis.case_edge_times`). [F, s]
     operating_fall : float
-        The far-end 10–90 % fall on the same line. [s]
+        The 10–90 % fall read the same way. [s]
     rs : float
         Series resistor on the line. [Ω]
     model : str
@@ -197,14 +200,19 @@ def edge_vs_load_data(bus: Bus, design: Design, signal: str, *, driver: str | No
                 drv.edge_vs_load(model, loads, edge, lv, r_series=rs), dtype=float)
     kind = "distributed" if case.distributed else "lumped"
     line_model = "transmission-line model" if case.distributed else "lumped model"
+    # The edges the line's figures read (edge_rise_time is their worst over the
+    # drivers): at the far end, or on a route the slowest at a receiver's point.
+    rise, fall = case_edge_times(case, la.receivers)
+    where = ("far end of this line" if case.points is None
+             else "slowest receiver on this line")
     return EdgeLoadData(
         bus.id, signal, ref, loads, curves, (np.array(pts_x), np.array(pts_y), pts_n),
-        (load0, float(case.rise.t_edge)), float(case.fall.t_edge), float(la.rs), kind,
-        operating_label=f"far end of this line ({line_model})",
+        (load0, float(rise)), float(fall), float(la.rs), kind,
+        operating_label=f"{where} ({line_model})",
         curves_title="Driver model into a lumped load at its pin",
         subtitle=("Curves: the driver alone into a lumped load (datasheet conditions). "
-                  f"Cross: the rise at the far end of this line ({line_model}), the "
-                  "figure the checks use."))
+                  f"Cross: the rise at the {where} ({line_model}), the figure the "
+                  "checks use."))
 
 
 def _receiver_levels(la, ref: str, only: str | None = None) -> tuple[float, float, list[str]]:

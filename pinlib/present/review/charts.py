@@ -141,13 +141,17 @@ def _coupling_charts(result, keys, charts):
                f"each point is a spacing the engine solved in time. Shaded: the noise that "
                f"keeps a held-low receiver below VIL and a held-high one above VIH "
                f"({_f(d.allowed, 'V')}); the checks also weigh how long a crossing lasts "
-               f"against tSP. Dashed: {least}. Diamond: the design, "
+               f"against tSP (a crossing shorter than it warns; shaded orange where the "
+               f"noise is beyond a threshold and no check fails). Dashed: {least}, where "
+               f"no check fails. Diamond: the design, "
                f"{_f(d.design_peak, 'V')} at {_f(d.design_spacing, 'm')}.")
     charts.setdefault(place, []).append(_draw(
         key, "noise-vs-spacing", title, caption,
         lambda d=d, title=title: ch.noise_vs_spacing(
             d.spacing, d.peak, allowed=d.allowed, design_spacing=d.design_spacing,
-            design_peak=d.design_peak, minimum_spacing=d.minimum_spacing, title=title,
+            design_peak=d.design_peak, minimum_spacing=d.minimum_spacing,
+            within_spacing=d.within_spacing, t_sp=d.t_sp, searched_from=d.searched_from,
+            title=title,
             subtitle=f"parallel length {_f(d.length, 'm')}")))
     title = f"Victim noise: {result.victim} beside {result.aggressor}"
     caption = (f"The victim's voltage at both ends of the run, held low and held high, "

@@ -10,7 +10,7 @@ import ipywidgets as W
 import tomlkit
 
 from pinlib.core import messages as M
-from pinlib.core.errors import InputError, PinlibError
+from pinlib.core.errors import InputError, PinlibError, WriteError
 from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS, protocol
 from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import atomic_write, tomllib
@@ -20,6 +20,7 @@ from pinlib.library import load_library
 from pinlib.library.loader import Library
 from pinlib.model.design import MODES, design_from_text
 from pinlib.present import charts, plotdata
+from pinlib.present.widgets.choices import choice_line, with_button_below
 from pinlib.present.widgets.common import (
     ChartView,
     QuantityField,
@@ -273,6 +274,10 @@ class BusBuilder(_Panel):
         self.save_path = W.Text(value="", placeholder="board.toml", description="Save as",
                                 style=style(), layout=field_layout())
         self.save_button = W.Button(description="Save", layout=button_layout())
+        # An existing file is replaced only with this ticked; it names the file the box
+        # holds and is unticked again when the name changes or after each save.
+        self.save_overwrite = W.Checkbox(value=False, description="overwrite an existing file",
+                                         indent=False, layout=field_layout())
         self.save_error = W.HTML(layout=W.Layout(width="auto"))
 
     def _wire(self) -> None:
@@ -287,6 +292,7 @@ class BusBuilder(_Panel):
         self.remove_button.on_click(lambda _b: self.placed.value and
                                     self.remove_peripheral(self.placed.value))
         self.save_button.on_click(lambda _b: self._save_clicked())
+        self.save_path.observe(self._save_path_changed, names="value")
 
         self._choice("protocol", self.protocol)
         self._setters["mode"] = self._set_mode
@@ -505,29 +511,49 @@ class BusBuilder(_Panel):
             f"rise time without the probe <b>{format_si(rise, 's')}</b> "
             f"({lo:.0%}–{hi:.0%}).</div>")
 
-    def save(self, path: str | os.PathLike) -> Path:
+    def save(self, path: str | os.PathLike, *, overwrite: bool = False) -> Path:
         """Write the design file atomically, after loading it back as a check.
 
         The text is loaded with :func:`pinlib.model.design.design_from_text` from where it will
         be (its ``library`` folders resolved beside it) before anything is written; an
-        invalid design raises and leaves any existing file as it was.
+        invalid design raises and leaves any existing file as it was.  An existing file
+        is replaced only with ``overwrite`` (as ``pinlib new`` only with ``--force``):
+        without it a :class:`~pinlib.core.errors.WriteError` names the file.
         """
         path = Path(path)
         text = self.design_text(relative_to=path.parent)
         design_from_text(tomllib.loads(text), text, path)
+        if path.is_dir():
+            raise WriteError(M.SAVE_TARGET_IS_FOLDER.format(file=path), file=str(path),
+                             field="save as", expected="a design file path such as board.toml")
+        if not overwrite and os.path.lexists(path):
+            raise WriteError(M.SAVE_WOULD_OVERWRITE.format(file=path), file=str(path),
+                             field="save as",
+                             hint=M.SAVE_OVERWRITE_HINT.format(name=path.name))
         atomic_write(path, text)
         self.saved_path = path
         return path
 
+    def _save_path_changed(self, change=None) -> None:
+        """Another name: a consent to overwrite was given for the old one only."""
+        self.save_overwrite.value = False
+        self.save_overwrite.description = "overwrite an existing file"
+        self.save_error.value = ""
+
     def _save_clicked(self) -> None:
+        name = self.save_path.value.strip()
         try:
-            if not self.save_path.value.strip():
+            if not name:
                 raise InputError(M.FILE_NAME_NEEDED, field="save as",
                                  expected="a path such as board.toml")
-            path = self.save(self.save_path.value.strip())
+            path = self.save(name, overwrite=self.save_overwrite.value)
         except PinlibError as err:
+            if err.problem == M.SAVE_WOULD_OVERWRITE.format(file=Path(name)):
+                self.save_overwrite.description = f"overwrite {Path(name).name}"
             self.save_error.value = inline_error(err)
             return
+        self.save_overwrite.value = False  # the next overwrite is asked for again
+        self.save_overwrite.description = "overwrite an existing file"
         self.save_error.value = block(f"saved {e(path)}")
 
     def static_view(self) -> StaticView:
@@ -543,13 +569,15 @@ class BusBuilder(_Panel):
             self.title, self.protocol, self.mode, self.mode_note, self.supply.box,
             self.supply_tolerance.box,
             heading("Parts"), self.category, self.fits_supply, self.function,
-            self.controller, self.controller_note, with_button(self.pick, self.add_button),
-            self.pick_note, with_button(self.placed, self.remove_button),
+            self.controller, choice_line(self.controller), self.controller_note,
+            with_button(self.pick, self.add_button), choice_line(self.pick), self.pick_note,
+            with_button_below(self.placed, self.remove_button),
             heading("Trace"), self.trace.box, self.extra_capacitance.box,
             heading("Pull-up"), self.pullup_mode, self.pullup, self.pullup_tolerance.box,
             heading("Bench: a measured rise"), self.rise_measured.box, self.c_probe.box,
             self.levels, self.bench_html,
-            heading("Save"), with_button(self.save_path, self.save_button), self.save_error,
+            heading("Save"), with_button(self.save_path, self.save_button),
+            self.save_overwrite, self.save_error,
         ]
         outputs = [self.held_html, self.status_html, self.window.widget, self.figures_html,
                    self.notes_html]

@@ -124,7 +124,9 @@ def _shown(value: float | None, unit: str, shown: tuple[str, float] | None) -> s
         return ""
     if shown is not None:
         text, scale = shown
-        return f"{value / scale:.6g} {text}"
+        out = f"{value / scale:.6g} {text}"
+        # far from the shown unit's own size ("1e+06 ns"): the SI prefix that suits it
+        return out if "e" not in out.split()[0] else format_si(value, unit, digits=6)
     if unit == "":
         return f"{value:.6g}"
     return format_si(value, unit, digits=6)
@@ -263,14 +265,22 @@ def _num(x: float) -> str:
     return f"{float(x):.6g}"
 
 
-def _closest_option(options, value: float, field: str, what: str) -> float:
+def _closest_option(options, value: float, field: str, what: str, *, unit: str = "Ω",
+                    series: str | None = "E24") -> float:
+    """The option equal to ``value``; else an InputError naming the options (their
+    labels, each with its unit; a long list by its ends and its ``series``)."""
     vals = [v for _, v in options]
     for v in vals:
         if math.isclose(v, float(value), rel_tol=1e-9):
             return v
-    raise InputError(M.NOT_A_LISTED_VALUE.format(what=what), field=field, value=value,
-                     expected=f"one of {format_si(vals[0], 'Ω')} … {format_si(vals[-1], 'Ω')} "
-                              f"in E24")
+    labels = [str(label) for label, _ in options]
+    if len(labels) <= 16:
+        expected = "one of " + ", ".join(labels)
+    else:
+        expected = f"one of {labels[0]} … {labels[-1]}" + (f" in {series}" if series else "")
+    shown = format_si(float(value), unit) if isinstance(value, (int, float)) else value
+    raise InputError(M.NOT_A_LISTED_VALUE.format(what=what), field=field, value=shown,
+                     expected=expected)
 
 
 def _e24_options(lo: float, hi: float) -> list[tuple[str, float]]:

@@ -43,6 +43,10 @@ LENGTHS = (0.01, 0.02, 0.03, 0.04, 0.06, 0.08, 0.1, 0.15, 0.2, 0.3, 0.5)
 EDGES = (0.2e-9, 0.3e-9, 0.5e-9, 0.75e-9, 1e-9, 1.5e-9, 2e-9, 3e-9, 5e-9, 10e-9)
 
 
+#: The unit of each slider's values.
+_UNITS = {"spacing": "m", "length": "m", "edge_time": "s"}
+
+
 def _options(values, unit: str, own: float) -> list[tuple[str, float]]:
     """Slider options: the usual values and the design's own."""
     got = sorted(set(values) | {float(own)})
@@ -128,7 +132,8 @@ class CrosstalkExplorer(_Panel):
 
     def _set_slider(self, name: str, value) -> None:
         slider = getattr(self, name)
-        slider.value = _closest_option(slider.options, value, name, f"{name} slider")
+        slider.value = _closest_option(slider.options, value, name, f"{name} slider",
+                                       unit=_UNITS[name], series=None)
 
     def varied(self):
         """The coupling as the sliders set it (a described edge where the edge moved)."""
@@ -138,6 +143,14 @@ class CrosstalkExplorer(_Panel):
             c = replace(c, aggressor=replace(self.aggressor, edge_time=self.edge_time.value),
                         loc=self.coupling.loc)
         return c
+
+    def title(self) -> str:
+        """What the status line names: the victim beside the design's aggressor (a moved
+        edge slider turns it into a described edge, whose name says nothing)."""
+        name = f"{self.coupling.victim} beside {self.coupling.aggressor_name}"
+        if self.edge_time.value != self.aggressor.edge_time:
+            name += f", its edge set to {format_si(self.edge_time.value, 's')}"
+        return name
 
     def _recompute(self) -> None:
         try:
@@ -159,10 +172,14 @@ class CrosstalkExplorer(_Panel):
         self.noise_chart.draw(lambda: charts.spec(
             charts.noise_vs_spacing, d.spacing, d.peak, allowed=d.allowed,
             design_spacing=d.design_spacing, design_peak=d.design_peak,
-            minimum_spacing=d.minimum_spacing, title="Crosstalk against spacing",
-            subtitle=f"parallel length {format_si(d.length, 'm')}"))
+            minimum_spacing=d.minimum_spacing, within_spacing=d.within_spacing,
+            t_sp=d.t_sp, searched_from=d.searched_from, title="Crosstalk against spacing",
+            subtitle=f"parallel length {format_si(d.length, 'm')}; " + (
+                f"a crossing shorter than tSP {format_si(d.t_sp, 's')} is filtered (a "
+                "warning): the minimum spacing is where no check fails" if d.t_sp else
+                "these inputs need not filter spikes: a crossing fails")))
         self._draw_waves()
-        self.status_html.value = status_line(got, f"{got.victim} beside {got.aggressor}")
+        self.status_html.value = status_line(got, self.title())
         self.figures_html.value = figures_table(self.figures)
         self.checks_html.value = checks_table(got)
         self.notes_html.value = notes_html([got])

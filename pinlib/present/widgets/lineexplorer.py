@@ -15,6 +15,7 @@ from pinlib.engines.dispatch import check_design
 from pinlib.library import load_library
 from pinlib.library.loader import Library
 from pinlib.present import charts, plotdata
+from pinlib.present.widgets.choices import choice_line, with_button_below
 from pinlib.present.widgets.common import (
     ChartView,
     QuantityField,
@@ -374,9 +375,11 @@ class LineExplorer(_Panel):
 
     def _layout(self) -> W.Widget:
         controls = [
-            self.driver_part, self.driver_pin, self.pin_note, self.supply.box,
+            self.driver_part, choice_line(self.driver_part), self.driver_pin, self.pin_note,
+            self.supply.box,
             heading("Receivers"), self.any_function, with_button(self.pick, self.add_button),
-            self.pick_note, with_button(self.placed, self.remove_button),
+            choice_line(self.pick), self.pick_note,
+            with_button_below(self.placed, self.remove_button),
             heading("Trace"), self.trace.box,
             heading("Termination"), self.series_mode, self.series,
             heading("Placement"), self.placement, self.receiver_view,

@@ -199,9 +199,12 @@ class SpiBudget(_Panel):
         else:
             self.chart.draw(lambda: charts.spec(
                 charts.timing_budget, tb.rows, available=tb.available, margins=tb.margins,
-                status=tb.status,
+                status=tb.status, worst=tb.worst,
                 title=f"SPI timing budget, {bus.id} at {format_si(tb.clock, 'Hz')}",
-                subtitle=f"SPI mode {bus.spi_mode}; the tick is the time available"))
+                subtitle=f"SPI mode {bus.spi_mode}; the tick is the time available"
+                         + ("; bars: the board as designed, and each check's margin at "
+                            "its worst corner of the tolerances (the checks table's)"
+                            if tb.worst else "")))
         self.status_html.value = status_line(br, f"Bus {br.id} at "
                                                   f"{format_si(bus.clock, 'Hz')}")
         self._show_limits()

@@ -17,14 +17,15 @@ import ipywidgets as W
 import numpy as np
 
 from pinlib.core import messages as M
-from pinlib.core.errors import PinlibError
-from pinlib.core.labels import check_label, figure_label, short_label, shown_figures
+from pinlib.core.errors import InputError, PinlibError
+from pinlib.core.labels import check_label, figure_label, short_label
 from pinlib.core.protocols import is_open_drain, protocol
 from pinlib.core.quantity import format_si
 from pinlib.engines.dispatch import check_design
 from pinlib.model.design import load_design
 from pinlib.present import charts, plotdata
 from pinlib.present.report import format_value
+from pinlib.present.widgets.choices import choice_line
 from pinlib.present.widgets.common import (
     ChartView,
     StaticView,
@@ -54,8 +55,10 @@ from pinlib.present.widgets.markup import (
     error_html,
     inline_error,
     note,
+    notice,
 )
 from pinlib.studies.compare import format_change, format_figure
+from pinlib.studies.compare.changes import shown_changes
 
 #: How many candidates the ranking table shows.
 TOP = 10
@@ -108,6 +111,7 @@ class SwapExplorer(_Panel):
         self._ranked: tuple | None = None
         self._computed: dict | None = None
         self._choose_bus = False
+        self.load_error: PinlibError | None = None
         self.path_box = W.Text(value=str(path), description="Design", style=style(),
                                layout=W.Layout(width="auto", max_width="720px"))
         self.load_button = W.Button(description="Load", layout=button_layout())
@@ -140,10 +144,10 @@ class SwapExplorer(_Panel):
             self._header("Rerun a saved design after a substitution"),
             with_button(self.path_box, self.load_button), self.path_error,
             self._columns(
-                [self.ref, self.new_part,
+                [self.ref, choice_line(self.ref), self.new_part, choice_line(self.new_part),
                  W.HBox([self.apply_button, self.reset_button]), self.refused_html,
                  self.swaps_html, heading("Charts and checks"), self.chart_bus],
-                [self.status_html, self.changes_html], basis=420),
+                [self.held_html, self.status_html, self.changes_html], basis=420),
             W.Box([self.before.widget, self.after.widget], layout=row_layout()),
             self.candidates_box, self.candidates_note, self.checks_html],
             layout=W.Layout(width="100%"))
@@ -157,6 +161,7 @@ class SwapExplorer(_Panel):
         design = load_design(find_file(path), library_folders=self.folders)
         result = check_design(design)
         self.design, self.result = design, result
+        self.load_error = None
         self.before_snapshot = snapshot(design, result)
         self.swaps = {}
         self.refused = []
@@ -173,7 +178,15 @@ class SwapExplorer(_Panel):
         refs: dict[str, list[str]] = {}
         for b in self.design.buses:
             for d in b.devices:
-                refs.setdefault(d.ref, []).append(b.id)
+                places = refs.setdefault(d.ref, [])
+                segments = [s.id for s in getattr(b, "segments", ()) or ()
+                            if any(x.ref == d.ref for x in s.devices)]
+                # a part bridging segments sits on the bus more than once: name each
+                # segment (bus/segment, as the change list does), the bus alone otherwise
+                for place in ([f"{b.id}/{s}" for s in segments] if len(segments) > 1
+                              else [b.id]):
+                    if place not in places:
+                        places.append(place)
         labels = []
         for ref, buses in refs.items():
             old, now = self._places(ref)[0][1].part_id, self._part_at(ref)
@@ -182,12 +195,30 @@ class SwapExplorer(_Panel):
         set_options(self.ref, labels, self.ref.value)
 
     def _load_clicked(self) -> None:
+        path = self.path_box.value.strip()
         try:
-            self.load(self.path_box.value.strip())
+            if not path or Path(path).is_dir():
+                raise InputError(M.DESIGN_PATH_NEEDED, field="design", value=path or None,
+                                 expected="a design file path such as "
+                                          "designs/demo-board.toml")
+            self.load(path)
         except PinlibError as err:
             self.path_error.value = inline_error(err)
+            self.load_error = err
+            self._show_held()
             return
         self.path_error.value = ""
+
+    def _show_held(self) -> bool:
+        """After a failed Load the results shown are still the old design's: say so (the
+        notice workbooks 01-03 show over results of the last valid inputs)."""
+        held = super()._show_held()
+        if self.load_error is not None and getattr(self, "design", None) is not None:
+            self.held_html.value = notice(
+                f"Not recomputed: <b>{e(self.path_box.value.strip() or '(no path)')}</b> "
+                "could not be loaded (see the message under Design). The results below "
+                f"are those of <b>{e(str(self.design.path))}</b>, loaded before.")
+        return held
 
     def _places(self, ref: str) -> list:
         return [(b, d) for b in self.design.buses for d in b.devices if d.ref == ref]
@@ -291,18 +322,44 @@ class SwapExplorer(_Panel):
         """After a substitution: chart the position's first bus with a status change."""
         buses = _values(self.chart_bus.options)
         changed = [] if self.changes is None else \
-            [c.path.split("/")[0] for c in self.changes.status_changes]
+            [self._group_of(c.path) for c in self.changes.status_changes]
         pick = next((b for b in buses if b in changed), None)
         if pick is not None and pick != self.chart_bus.value:
             with self._hold():
                 self.chart_bus.value = pick
 
     # ---------------------------------------------------------------- change list
+    def _group_of(self, path: str) -> str:
+        """The bus a change belongs to: a bus's or segment's (``bus/...``) that bus, a
+        coupling's (``victim<-aggressor``) its victim's bus; anything else its own path
+        (listed after the buses, never left out)."""
+        head = path.split("/")[0]
+        if any(b.id == head for b in self.design.buses):
+            return head
+        for c in getattr(self.design, "couplings", ()) or ():
+            if c.id == path:
+                return c.victim_bus
+        return path
+
     def _bus_order(self) -> list[str]:
-        """Bus ids, those with a status change first, then in the design's order."""
+        """The groups of the change list: bus ids, those with a status change first, then
+        in the design's order; then any other place a change was found."""
+        cl = self.changes
         ids = [b.id for b in self.design.buses]
-        changed = {c.path.split("/")[0] for c in self.changes.status_changes}
+        for c in list(cl.status_changes) + list(cl.figure_changes):
+            g = self._group_of(c.path)
+            if g not in ids:
+                ids.append(g)
+        changed = {self._group_of(c.path) for c in cl.status_changes}
         return sorted(ids, key=lambda b: (b not in changed, ids.index(b)))
+
+    def _place(self, path: str) -> str:
+        """Where in its group a change lies: the segment or line of a bus, a coupling's
+        id, "bus" for the bus itself."""
+        head, _, rest = path.partition("/")
+        if any(b.id == head for b in self.design.buses):
+            return rest or "bus"
+        return path
 
     def _changes_html(self) -> str:
         cl = self.changes
@@ -313,12 +370,13 @@ class SwapExplorer(_Panel):
                         f"{cl.threshold:.0%}, no part value differs")
         out = []
         for bus in self._bus_order():
-            status = [c for c in cl.status_changes if c.path.split("/")[0] == bus]
-            figures = [c for c in cl.figure_changes if c.path.split("/")[0] == bus]
+            status = [c for c in cl.status_changes if self._group_of(c.path) == bus]
+            figures = [c for c in cl.figure_changes if self._group_of(c.path) == bus]
             if not (status or figures):
                 continue
             rows = self._figure_rows(figures)
-            head = (f"Bus <b>{e(bus)}</b>: {len(status)} check"
+            kind = "Bus" if any(b.id == bus for b in self.design.buses) else "Place"
+            head = (f"{kind} <b>{e(bus)}</b>: {len(status)} check"
                     f"{'' if len(status) == 1 else 's'} changed status, {len(rows)} figure"
                     f"{'' if len(rows) == 1 else 's'} moved more than {cl.threshold:.0%}")
             body = ""
@@ -338,39 +396,27 @@ class SwapExplorer(_Panel):
                        f"</summary><ul>{items}</ul></details>")
         return block("".join(out))
 
-    @staticmethod
-    def _status_item(c) -> str:
-        where = " ".join(x for x in (c.path.partition("/")[2], c.subject) if x)
+    def _status_item(self, c) -> str:
+        place = self._place(c.path)
+        where = " ".join(x for x in ("" if place == "bus" else place, c.subject) if x)
         if c.old_subject:
             where += f" (was {c.old_subject})"
-        values = ""
-        if c.old is not None and c.new is not None:
-            values = (f"{format_figure(c.old_value, c.unit)} → "
-                      f"{format_figure(c.new_value, c.unit)}")
-        limit = c.new_limit if c.new is not None else c.old_limit
-        if limit is not None and not isinstance(limit, bool):
-            values += f"{', ' if values else ''}limit {format_figure(limit, c.unit)}"
+        values = c.values_text()  # what `pinlib swap` shows in its parentheses
         return (f'<li title="{e(c.format())}">{badge(c.old or "absent")} → '
                 f"{badge(c.new or 'absent')} <b>{e(check_label(c.check))}</b> {e(where)}"
                 + (f" ({e(values)})" if values else "") + "</li>")
 
-    @staticmethod
-    def _figure_rows(figures) -> list[str]:
-        """Rows of moved figures, by segment or line, each figure once
-        (:func:`pinlib.core.labels.shown_figures`)."""
-        by_path: dict[str, dict] = {}
-        for c in figures:
-            by_path.setdefault(c.path, {})[c.name] = c
+    def _figure_rows(self, figures) -> list[str]:
+        """Rows of moved figures, by segment, line or coupling, each quantity once: the
+        figures `pinlib swap` lists (:func:`pinlib.studies.compare.changes.shown_changes`)."""
         rows = []
-        for path, named in by_path.items():
-            where = path.partition("/")[2] or "bus"
-            for name in shown_figures({n: (c.old, c.new) for n, c in named.items()}):
-                c = named[name]
-                rows.append(f'<tr title="{e(c.path)} {e(name)}"><td style="{CELL}">{e(where)}'
-                            f'</td><td style="{CELL}">{e(figure_label(name))}</td>'
-                            f'<td style="{NUM}">{e(format_figure(c.old, c.unit))} → '
-                            f'{e(format_figure(c.new, c.unit))}</td>'
-                            f'<td style="{NUM}">{e(format_change(c.change))}</td></tr>')
+        for c in shown_changes(figures):
+            rows.append(f'<tr title="{e(c.path)} {e(c.name)}"><td style="{CELL}">'
+                        f'{e(self._place(c.path))}'
+                        f'</td><td style="{CELL}">{e(figure_label(c.name))}</td>'
+                        f'<td style="{NUM}">{e(format_figure(c.old, c.unit))} → '
+                        f'{e(format_figure(c.new, c.unit))}</td>'
+                        f'<td style="{NUM}">{e(format_change(c.change))}</td></tr>')
         return rows
 
     # ---------------------------------------------------------------- charts
@@ -405,7 +451,7 @@ class SwapExplorer(_Panel):
         return charts.spec(charts.edge_vs_load, ed.loads, np.vstack(list(ed.curves.values())),
                            series=list(ed.curves),
                            points=ed.points if len(ed.points[0]) else None,
-                           operating=(ed.operating[0], ed.operating[1], "far end"),
+                           operating=(ed.operating[0], ed.operating[1], ed.operating_label),
                            title=f"{label}: edge time against load, {bus.id} {sig}")
 
     def _draw(self) -> None:

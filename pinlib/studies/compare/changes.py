@@ -58,7 +58,14 @@ class StatusChange:
             where += f" (was {self.old_subject})"
         old = self.old or "(absent)"
         new = self.new or "(absent)"
-        text = f"{where}: {old} {_ARROW} {new}"
+        text = f"{where}: {old} {_ARROW} {new} ({self.values_text()})"
+        if self.source:
+            text += f"; source: {self.source}"
+        return text
+
+    def values_text(self) -> str:
+        """The check's value (before → after, or the one side present) and its limit, as
+        :meth:`format` shows them in parentheses: ``117 mV → 420 mV, limit 940 mV``."""
         vals = []
         if self.old is not None and self.new is not None:
             vals.append(f"{format_figure(self.old_value, self.unit)} {_ARROW} "
@@ -74,10 +81,7 @@ class StatusChange:
                             f"{format_figure(self.new_limit, self.unit)}")
             else:
                 vals.append(f"limit {format_figure(limit, self.unit)}")
-        text += " (" + ", ".join(vals) + ")"
-        if self.source:
-            text += f"; source: {self.source}"
-        return text
+        return ", ".join(vals)
 
     def to_json(self) -> dict:
         return {"path": self.path, "check": self.check, "subject": self.subject,
