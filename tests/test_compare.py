@@ -325,6 +325,20 @@ def test_broken_snapshot_is_an_input_error(board):
         load_snapshot(snapshot_path(board))
 
 
+@pytest.mark.parametrize("command", ["check", "report"])
+def test_an_unreadable_snapshot_is_advised_on_once(board, capsys, tmp_path, command):
+    # Once the error's own advice ("delete it or save a new one with `pinlib check
+    # DESIGN --save`") and then the command's ("`pinlib check x.toml --save` replaces it").
+    snapshot_path(board).write_text("{not json", encoding="utf-8")
+    argv = [command, str(board)] + (["--html", str(tmp_path / "r.html")]
+                                    if command == "report" else [])
+    main(argv)
+    err = capsys.readouterr().err
+    assert "not valid JSON" in err and "snapshot is ignored" in err
+    assert err.count("--save") == 1 and "delete it" not in err
+    assert f"`pinlib check {board} --save` replaces it" in err
+
+
 @pytest.mark.parametrize("damage", [
     ("buses", [1]), ("parts", []), ("buses", None), ("parts", {"U4": {"values": None}}),
     ("parts", {"U4": {"buses": [1], "part": "x"}}), ("status", {"a": 1}),

@@ -206,8 +206,9 @@ def _run_one(args) -> int:
         damaged: list = []
         changes = compare_with_snapshot(design, result, threshold, damaged=damaged)
         for err in damaged:  # named, then ignored: the check itself still runs
-            _warn(f"pinlib: warning: {err.message}; "
-                  + M.SNAPSHOT_IGNORED.format(design=args.design))
+            # its own advice (delete it, or save anew) in place of the error's: once
+            _warn("pinlib: warning: " + err.with_hint(
+                M.SNAPSHOT_IGNORED.format(design=args.design)).message)
     extra = _what_if(design, args, result)
     if args.json:
         out = result.to_json()
