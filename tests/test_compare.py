@@ -26,6 +26,7 @@ from pinlib.studies.compare import (
     compare,
     compare_with_snapshot,
     figure_rows,
+    format_change,
     load_snapshot,
     parse_change_threshold,
     save_snapshot,
@@ -34,6 +35,7 @@ from pinlib.studies.compare import (
     swapped_text,
     value_label,
 )
+from pinlib.studies.compare.changes import FigureChange
 
 # ---------------------------------------------------------------- invented test data
 
@@ -751,3 +753,26 @@ def test_swap_help_has_an_example(capsys):
     assert exc.value.code == 0
     out = capsys.readouterr().out
     assert "examples:" in out and "pinlib swap" in out and "--write" in out
+
+
+@pytest.mark.parametrize("rel, old, text", [
+    (0.125, 1.0, "(+12.5 %)"),          # three significant digits up to ±999 %
+    (-0.5, 2.0, "(-50 %)"),
+    (9.994, 1.0, "(+999 %)"),
+    (186.0, 1e-9, "(×187)"),             # once '+1.86e+04 %'
+    (18.6, 1.0, "(×19.6)"),
+    (1e4, 2.0, "(×10,001)"),
+    (186.0, -1.0, "(> +999 %)"),         # from a negative figure a factor means nothing
+    (-186.0, 1.0, "(< -999 %)"),         # as percent_text shows margins
+    (1e-7, 1.0, "(< 0.001 %)"),
+    (math.inf, 0.0, "(from zero)"),
+    (None, 1.0, ""),
+])
+def test_a_change_reads_without_an_exponent(rel, old, text):
+    # common practice, no source: an engineer reads ×187, not +1.86e+04 %
+    assert format_change(rel, old) == text
+
+
+def test_a_figure_change_shows_a_large_rise_as_a_factor():
+    c = FigureChange("sensors/main-3v3", "rise_time", "s", 1e-9, 187e-9, 186.0, "moved")
+    assert c.format().endswith("(×187)") and "e+" not in c.format()

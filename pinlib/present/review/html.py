@@ -343,7 +343,7 @@ class _Html:
                 self.w(f"<tr><td>{_e(f.path)}</td><td>{_e(figure_label(f.name))}</td>"
                        f'<td class="num">{_e(format_figure(f.old, f.unit))}</td>'
                        f'<td class="num">{_e(format_figure(f.new, f.unit))}</td>'
-                       f'<td class="num">{_e(format_change(f.change) or f.kind)}</td></tr>')
+                       f'<td class="num">{_e(format_change(f.change, f.old) or f.kind)}</td></tr>')
             self.w("</tbody></table>")
         if cl.part_changes:
             self.w("<h3>Part values behind the change</h3>")

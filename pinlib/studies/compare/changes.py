@@ -102,7 +102,7 @@ class FigureChange:
 
     def format(self) -> str:
         """``path: Label old → new (change)``, the figure under its readable label."""
-        change = format_change(self.change) if self.kind in ("moved", "same") else {
+        change = format_change(self.change, self.old) if self.kind in ("moved", "same") else {
             "added": "(new)", "removed": "(gone)"}.get(self.kind, "")
         return (f"{self.path}: {figure_label(self.name)} {format_figure(self.old, self.unit)} "
                 f"{_ARROW} {format_figure(self.new, self.unit)} {change}").rstrip()
