@@ -69,6 +69,19 @@ BAD = {
     "bare-number": (ONE_BUS.replace('supply = "3.3 V"', 'supply = "3.3 V"\nextra_capacitance = 12')
                     .replace("PART", "t-target"), "bus[0].extra_capacitance", 9,
                     ["a bare number has no unit", '"12 pF"']),
+    # A range states what is accepted: 0 Hz is refused, so not "between 0 Hz and 100 GHz".
+    "zero-clock": (ONE_BUS.replace('supply = "3.3 V"', 'supply = "3.3 V"\nclock = "0 MHz"')
+                   .replace("PART", "t-target"), "bus[0].clock", 9,
+                   ["the clock must be above zero", "'0 MHz'",
+                    "expected more than 0 Hz and at most 100 GHz"]),
+    "clock-too-high": (ONE_BUS.replace('supply = "3.3 V"', 'supply = "3.3 V"\nclock = "200 GHz"')
+                       .replace("PART", "t-target"), "bus[0].clock", 9,
+                       ["outside the plausible range", "'200 GHz'",
+                        "expected more than 0 Hz and at most 100 GHz"]),
+    "negative-capacitance": (ONE_BUS.replace('supply = "3.3 V"',
+                                             'supply = "3.3 V"\nextra_capacitance = "-1 pF"')
+                             .replace("PART", "t-target"), "bus[0].extra_capacitance", 9,
+                             ["a negative value", "'-1 pF'", "expected at least 0 F and at most"]),
     "bus-trace-with-segments": (SEGMENTS.replace('protocol = "i2c"\n', 'protocol = "i2c"\ntrace = '
                                                  '{ length = "5 cm", capacitance = "1 pF/cm" }\n'),
                                 "bus[0].trace", 8, ["trace goes in the segments"]),

@@ -10,7 +10,15 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from pinlib.core.errors import UnitError
-from pinlib.core.quantity import UNITS, Threshold, format_si, parse, parse_ratio, parse_threshold
+from pinlib.core.quantity import (
+    UNITS,
+    Threshold,
+    format_si,
+    parse,
+    parse_ratio,
+    parse_threshold,
+    range_text,
+)
 
 # One inch is 25.4 mm and one mil a thousandth of it.
 INCH = 25.4e-3  # published: international yard and pound agreement (1959), 1 in = 25.4 mm
@@ -329,3 +337,12 @@ def test_format_si_agrees_with_quantiphy(mantissa, exponent, negative, unit, dig
 def test_format_si_rounding_edges_agree_with_quantiphy(value, digits):
     # values that round up into the next prefix, and the ends of the float range
     assert format_si(value, "F", digits) == _quantiphy_text(value, "F", digits)
+
+
+def test_range_text_says_whether_the_low_end_is_accepted():
+    # common practice, no source: the words of the test applied, so a refused 0 Hz is
+    # never inside the range an error states
+    assert range_text(0.0, 100e9, "Hz", above=True) == "more than 0 Hz and at most 100 GHz"
+    assert range_text(10e-6, 0.1, "m") == "at least 10 µm and at most 100 mm"
+    assert range_text(None, 3, "") == "at most 3"
+    assert range_text(1.0, 100.0) == "at least 1 and at most 100"

@@ -39,6 +39,7 @@ __all__ = [
     "parse_threshold",
     "format_si",
     "format_value",
+    "range_text",
     "unit_name",
 ]
 
@@ -397,6 +398,24 @@ def format_si(value, unit: str, digits: int = 3) -> str:
     if value == 0.0:
         return f"0 {unit}".strip()
     return _rendered(value, unit, digits)
+
+
+def range_text(lo: float | None, hi: float | None, unit: str = "", *,
+               above: bool = False) -> str:
+    """What a range accepts, in the words of the test it applies, for an error's
+    ``expected``: ``"at least 10 µm and at most 100 mm"``; with ``above`` (the low end
+    itself refused) ``"more than 0 Hz and at most 100 GHz"``.  Without a unit the
+    bounds are plain numbers."""
+
+    def shown(x):
+        return format_si(x, unit) if unit else f"{x:g}"
+
+    ends = []
+    if lo is not None:
+        ends.append(f"{'more than' if above else 'at least'} {shown(lo)}")
+    if hi is not None:
+        ends.append(f"at most {shown(hi)}")
+    return " and ".join(ends)
 
 
 #: SI prefixes written by format_si, by engineering exponent (micro as the micro sign).

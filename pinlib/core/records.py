@@ -117,9 +117,9 @@ class Rule:
         elif isinstance(v, (int, float)) and (
                 (self.ge is not None and not v >= self.ge)
                 or (self.le is not None and not v <= self.le)):
-            lo = f"at least {self.ge}" if self.ge is not None else None
-            hi = f"at most {self.le}" if self.le is not None else None
-            return M.OUTSIDE_RANGE, " and ".join(b for b in (lo, hi) if b)
+            from pinlib.core.quantity import range_text
+
+            return M.OUTSIDE_RANGE, range_text(self.ge, self.le)
         return None
 
 
