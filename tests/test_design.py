@@ -82,6 +82,22 @@ BAD = {
                                              'supply = "3.3 V"\nextra_capacitance = "-1 pF"')
                              .replace("PART", "t-target"), "bus[0].extra_capacitance", 9,
                              ["a negative value", "'-1 pF'", "expected at least 0 F and at most"]),
+    # A refusal quotes the value as written, with its unit, and says what is expected.
+    "negative-supply": (ONE_BUS.replace('"3.3 V"', '"-3.3 V"').replace("PART", "t-target"),
+                        "bus[0].supply", 8,
+                        ["the supply must be positive (got '-3.3 V')",
+                         "expected more than 0 V and at most 100 V"]),
+    "zero-device-supply": (ONE_BUS.replace('part = "PART" }',
+                                           'part = "t-target", supply = "0 mV" }'),
+                           "bus[0].devices[1].supply", 11,
+                           ["the supply must be positive (got '0 mV')", "more than 0 V"]),
+    "tolerance-too-wide": (ONE_BUS.replace('supply = "3.3 V"',
+                                           'supply = "3.3 V"\nsupply_tolerance = "60 %"')
+                           .replace("PART", "t-target"), "bus[0].supply_tolerance", 9,
+                           ["(got '60 %')", "expected at least 0 % and at most 50 %"]),
+    "quoted-number": (ONE_BUS.replace('protocol = "i2c"', 'protocol = "spi"\nspi_mode = "3"')
+                      .replace("PART", "t-target"), "bus[0].spi_mode", 8,
+                      ["not a whole number (got '3')", "expected a whole number, without quotes"]),
     "bus-trace-with-segments": (SEGMENTS.replace('protocol = "i2c"\n', 'protocol = "i2c"\ntrace = '
                                                  '{ length = "5 cm", capacitance = "1 pF/cm" }\n'),
                                 "bus[0].trace", 8, ["trace goes in the segments"]),

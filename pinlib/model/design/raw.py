@@ -83,6 +83,9 @@ Length = _unit("m", 0.0, 1000.0)
 Capacitance = _unit("F", 0.0, 1e-6)
 Resistance = _unit("Ω", 0.0, 1e9)
 Voltage = _unit("V", -100.0, 100.0)
+# A rail: every level and current is figured from it, so zero and below are refused here,
+# quoted as written.
+Supply = _unit("V", 0.0, 100.0, above=True, low_problem=M.SUPPLY_NOT_POSITIVE)
 # Every engine divides by the clock (its period, its budget): zero is refused here.
 Frequency = _unit("Hz", 0.0, 100e9, above=True, low_problem=M.CLOCK_NOT_POSITIVE)
 Ratio = _unit("%", 0.0, 1.0)
@@ -147,7 +150,7 @@ class RawDevice(Record):
     ref: Annotated[str, Rule(min_length=1, max_length=40)]
     part: str
     role: Literal["controller", "peripheral", "target"] = "peripheral"
-    supply: Voltage | None = None
+    supply: Supply | None = None
     switched: bool = False
     series_resistor: Resistance | None = None
     side: Literal["a", "b"] | None = None
@@ -158,7 +161,7 @@ class RawDevice(Record):
 
 class RawSegment(Record):
     id: str | None = None
-    supply: Voltage | None = None
+    supply: Supply | None = None
     supply_tolerance: Tolerance | None = None
     pullup: PullupSetting | None = None
     pullup_tolerance: Tolerance | None = None
