@@ -98,6 +98,13 @@ BAD = {
     "quoted-number": (ONE_BUS.replace('protocol = "i2c"', 'protocol = "spi"\nspi_mode = "3"')
                       .replace("PART", "t-target"), "bus[0].spi_mode", 8,
                       ["not a whole number (got '3')", "expected a whole number, without quotes"]),
+    # A bare number's unit as an engineer means it: an SPI clock of 20 is 20 MHz.
+    "bare-spi-clock": (ONE_BUS.replace('protocol = "i2c"', 'protocol = "spi"\nclock = 20')
+                       .replace("PART", "t-target"), "bus[0].clock", 8,
+                       ['e.g. "20 MHz" or "20 kHz"']),
+    "bare-i2c-clock": (ONE_BUS.replace('supply = "3.3 V"', 'supply = "3.3 V"\nclock = "400"')
+                       .replace("PART", "t-target"), "bus[0].clock", 9,
+                       ['e.g. "400 kHz" or "400 MHz"']),
     "bus-trace-with-segments": (SEGMENTS.replace('protocol = "i2c"\n', 'protocol = "i2c"\ntrace = '
                                                  '{ length = "5 cm", capacitance = "1 pF/cm" }\n'),
                                 "bus[0].trace", 8, ["trace goes in the segments"]),

@@ -14,6 +14,7 @@ from pinlib.core.quantity import (
     UNITS,
     Threshold,
     format_si,
+    likely_units,
     parse,
     parse_ratio,
     parse_threshold,
@@ -346,3 +347,29 @@ def test_range_text_says_whether_the_low_end_is_accepted():
     assert range_text(10e-6, 0.1, "m") == "at least 10 µm and at most 100 mm"
     assert range_text(None, 3, "") == "at most 3"
     assert range_text(1.0, 100.0) == "at least 1 and at most 100"
+
+
+@pytest.mark.parametrize("x, unit, field, units", [
+    # common practice, no source: SPI clocks are written in MHz (1-100), I2C/SMBus clocks
+    # in kHz (100-1000), pull-ups in kΩ, series resistors in Ω, traces in cm, cables in m,
+    # board cross-sections in mm and copper in µm
+    (20, "Hz", "clock", ("MHz", "kHz")),
+    (1, "Hz", "clock", ("MHz", "kHz")),
+    (400, "Hz", "clock", ("kHz", "MHz")),
+    (4.7, "Ω", "pullup", ("kΩ", "Ω")),
+    (22, "Ω", "series_resistor", ("Ω", "kΩ")),
+    (9, "m", "length", ("cm", "mm")),
+    (0.5, "m", "length", ("m", "cm")),
+    (0.2, "m", "width", ("mm",)),
+    (35, "m", "thickness", ("µm",)),
+    (8, "F", "c_in", ("pF",)),
+    (3.3, "V", "supply", ("V",)),
+])
+def test_a_bare_number_is_offered_its_likely_units(x, unit, field, units):
+    assert likely_units(x, unit, field) == units
+    with pytest.raises(UnitError) as info:
+        parse(x, unit, field=field)
+    assert f'"{x} {units[0]}"' in info.value.hint
+    with pytest.raises(UnitError) as info:
+        parse(str(x), unit, field=field)
+    assert f'"{x} {units[0]}"' in info.value.hint
