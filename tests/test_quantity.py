@@ -347,6 +347,17 @@ def test_range_text_says_whether_the_low_end_is_accepted():
     assert range_text(10e-6, 0.1, "m") == "at least 10 µm and at most 100 mm"
     assert range_text(None, 3, "") == "at most 3"
     assert range_text(1.0, 100.0) == "at least 1 and at most 100"
+    assert range_text(0, 1, above=True, below=True) == "more than 0 and less than 1"
+
+
+def test_a_refused_end_is_not_inside_the_stated_range():
+    # a confidence of exactly 1 was refused with "expected between 0 and 1"
+    from pinlib.core.errors import InputError
+    from pinlib.studies.whatif import wilson_interval
+
+    with pytest.raises(InputError) as info:
+        wilson_interval(2, 4, confidence=1.0)
+    assert info.value.expected == "more than 0 and less than 1"
 
 
 @pytest.mark.parametrize("x, unit, field, units", [

@@ -433,11 +433,12 @@ def format_si(value, unit: str, digits: int = 3) -> str:
 
 
 def range_text(lo: float | None, hi: float | None, unit: str = "", *,
-               above: bool = False) -> str:
+               above: bool = False, below: bool = False) -> str:
     """What a range accepts, in the words of the test it applies, for an error's
     ``expected``: ``"at least 10 µm and at most 100 mm"``; with ``above`` (the low end
-    itself refused) ``"more than 0 Hz and at most 100 GHz"``.  Without a unit the
-    bounds are plain numbers."""
+    itself refused) ``"more than 0 Hz and at most 100 GHz"``; with ``below`` (the high
+    end refused) ``"... and less than 1"``.  Without a unit the bounds are plain
+    numbers."""
 
     def shown(x):
         return format_si(x, unit) if unit else f"{x:g}"
@@ -446,7 +447,7 @@ def range_text(lo: float | None, hi: float | None, unit: str = "", *,
     if lo is not None:
         ends.append(f"{'more than' if above else 'at least'} {shown(lo)}")
     if hi is not None:
-        ends.append(f"at most {shown(hi)}")
+        ends.append(f"{'less than' if below else 'at most'} {shown(hi)}")
     return " and ".join(ends)
 
 
