@@ -855,3 +855,19 @@ def test_two_devices_of_one_part_renamed_are_not_guessed():
     assert find_renames(old, new) == ({}, {})
     new = {"buses": [], "parts": {"U11": part, "U2": part}}
     assert find_renames(old, new) == ({}, {"U1": "U11"})
+
+
+def test_the_report_says_a_rename_once(tmp_path, capsys):
+    text = _DEMO.read_text(encoding="utf-8")
+    path = tmp_path / "board.toml"
+    path.write_text(text, encoding="utf-8")
+    assert main(["check", str(path), "--save"]) in (0, 1)
+    for old, new in _RENAME_BUS:
+        text = text.replace(old, new)
+    path.write_text(text, encoding="utf-8")
+    out = tmp_path / "r.html"
+    main(["report", str(path), "--html", str(out)])
+    capsys.readouterr()
+    html = out.read_text(encoding="utf-8")
+    assert "bus sensors renamed to sensors-bus; no other change." in html
+    assert "(absent)" not in html
