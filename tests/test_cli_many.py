@@ -248,6 +248,42 @@ def test_against_snapshots_lists_what_moved_per_design(tmp_path, capsys, monkeyp
     assert rows[0]["changes"]
 
 
+@pytest.mark.parametrize("jobs", ["1", "2"])
+def test_save_over_several_designs_writes_each_snapshot_beside_its_design(
+        tmp_path, capsys, monkeypatch, jobs):
+    # once "error: field '--save': this option takes one design at a time"
+    from pinlib.studies.compare import load_snapshot, snapshot_path
+
+    monkeypatch.chdir(tmp_path)
+    (tmp_path / "sub").mkdir()
+    a, b = _board(tmp_path, "a.toml"), _board(tmp_path / "sub", "b.toml")
+    code = main(["check", "a.toml", "sub/b.toml", "--save", "--jobs", jobs])
+    out, err = capsys.readouterr()
+    assert code in (0, 1) and "one design at a time" not in err
+    for design in (a, b):
+        saved = load_snapshot(snapshot_path(load_design(design)))
+        assert saved is not None and saved["buses"]
+    assert (tmp_path / "sub" / "b.result.json").is_file()
+    assert ("saved 2 snapshots, each beside its design: a.result.json, "
+            "sub/b.result.json") in " ".join(err.split())
+    # each later run compares with its own snapshot
+    main(["check", "a.toml", "sub/b.toml", "--against-snapshots", "--jobs", "1"])
+    assert capsys.readouterr().out.count("no figure moved") == 2
+
+
+def test_save_over_several_designs_names_a_snapshot_it_cannot_write(
+        tmp_path, capsys, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    _board(tmp_path, "a.toml")
+    _board(tmp_path, "b.toml")
+    (tmp_path / "b.result.json").mkdir()  # in the way of b's snapshot
+    assert main(["check", "a.toml", "b.toml", "--save", "--jobs", "1"]) == 2
+    err = " ".join(capsys.readouterr().err.split())
+    assert "pinlib: error: " in err and "b.result.json" in err
+    assert "saved 1 snapshot, each beside its design: a.result.json; 1 design not saved" in err
+    assert (tmp_path / "a.result.json").is_file()
+
+
 def test_against_snapshots_wraps_to_the_terminal_and_keeps_lines_in_a_pipe(
         tmp_path, capsys, monkeypatch):
     # "    Changes against the snapshot saved <time>: status pass → warn" ran to 84

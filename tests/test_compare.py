@@ -26,6 +26,7 @@ from pinlib.studies.compare import (
     compare,
     compare_with_snapshot,
     figure_rows,
+    format_change,
     load_snapshot,
     parse_change_threshold,
     save_snapshot,
@@ -34,6 +35,7 @@ from pinlib.studies.compare import (
     swapped_text,
     value_label,
 )
+from pinlib.studies.compare.changes import FigureChange
 
 # ---------------------------------------------------------------- invented test data
 
@@ -323,6 +325,20 @@ def test_broken_snapshot_is_an_input_error(board):
     snapshot_path(board).write_text('{"format": "other"}', encoding="utf-8")
     with pytest.raises(InputError, match="not a pinlib result snapshot"):
         load_snapshot(snapshot_path(board))
+
+
+@pytest.mark.parametrize("command", ["check", "report"])
+def test_an_unreadable_snapshot_is_advised_on_once(board, capsys, tmp_path, command):
+    # Once the error's own advice ("delete it or save a new one with `pinlib check
+    # DESIGN --save`") and then the command's ("`pinlib check x.toml --save` replaces it").
+    snapshot_path(board).write_text("{not json", encoding="utf-8")
+    argv = [command, str(board)] + (["--html", str(tmp_path / "r.html")]
+                                    if command == "report" else [])
+    main(argv)
+    err = capsys.readouterr().err
+    assert "not valid JSON" in err and "snapshot is ignored" in err
+    assert err.count("--save") == 1 and "delete it" not in err
+    assert f"`pinlib check {board} --save` replaces it" in err
 
 
 @pytest.mark.parametrize("damage", [
@@ -737,3 +753,121 @@ def test_swap_help_has_an_example(capsys):
     assert exc.value.code == 0
     out = capsys.readouterr().out
     assert "examples:" in out and "pinlib swap" in out and "--write" in out
+
+
+@pytest.mark.parametrize("rel, old, text", [
+    (0.125, 1.0, "(+12.5 %)"),          # three significant digits up to ±999 %
+    (-0.5, 2.0, "(-50 %)"),
+    (9.994, 1.0, "(+999 %)"),
+    (186.0, 1e-9, "(×187)"),             # once '+1.86e+04 %'
+    (18.6, 1.0, "(×19.6)"),
+    (1e4, 2.0, "(×10,001)"),
+    (186.0, -1.0, "(> +999 %)"),         # from a negative figure a factor means nothing
+    (-186.0, 1.0, "(< -999 %)"),         # as percent_text shows margins
+    (1e-7, 1.0, "(< 0.001 %)"),
+    (math.inf, 0.0, "(from zero)"),
+    (None, 1.0, ""),
+])
+def test_a_change_reads_without_an_exponent(rel, old, text):
+    # common practice, no source: an engineer reads ×187, not +1.86e+04 %
+    assert format_change(rel, old) == text
+
+
+def test_a_figure_change_shows_a_large_rise_as_a_factor():
+    c = FigureChange("sensors/main-3v3", "rise_time", "s", 1e-9, 187e-9, 186.0, "moved")
+    assert c.format().endswith("(×187)") and "e+" not in c.format()
+
+
+# ---------------------------------------------------------------- renamed buses and devices
+_DEMO = Path(__file__).resolve().parents[1] / "workbooks" / "designs" / "demo-board.toml"
+
+
+def _demo_snapshot(tmp_path, name, *edits):
+    text = _DEMO.read_text(encoding="utf-8")
+    for old, new in edits:
+        assert old in text
+        text = text.replace(old, new)
+    path = tmp_path / name
+    path.write_text(text, encoding="utf-8")
+    design = load_design(path)
+    return snapshot(design, check_design(design))
+
+
+_RENAME_BUS = [('id = "sensors"', 'id = "sensors-bus"'),
+               ('victim = "sensors.scl"', 'victim = "sensors-bus.scl"')]
+
+
+def test_a_renamed_bus_and_device_read_as_renames_and_nothing_else(tmp_path):
+    # Once ~230 lines: every check 'pass → (absent)' and '(absent) → pass', and every
+    # part value of U6 and U16, with nothing saying that nothing else changed.
+    old = _demo_snapshot(tmp_path, "a.toml")
+    new = _demo_snapshot(tmp_path, "b.toml", *_RENAME_BUS,
+                         ('ref = "U6"', 'ref = "U16"'))
+    cl = compare(old, new)
+    assert cl.renames == [("bus", "sensors", "sensors-bus"), ("device", "U6", "U16")]
+    assert cl.empty and not cl.groups
+    text = cl.format_text()
+    assert "bus sensors renamed to sensors-bus; U6 renamed to U16; no other change" in text
+    assert len(text.splitlines()) <= 3  # the head, the renames, the design-name note
+    assert cl.to_json()["renames"][1] == {"kind": "device", "old": "U6", "new": "U16"}
+
+
+def test_renamed_items_are_compared_with_each_other(tmp_path):
+    old = _demo_snapshot(tmp_path, "a.toml")
+    new = _demo_snapshot(tmp_path, "b.toml", *_RENAME_BUS,
+                         ('clock = "400 kHz"', 'clock = "100 kHz"'))
+    cl = compare(old, new)
+    assert cl.renames == [("bus", "sensors", "sensors-bus")]
+    paths = {c.path.split("/")[0] for c in cl.figure_changes}
+    assert paths == {"sensors-bus"}  # the slower clock, under the new name
+    assert all(c.old is not None and c.new is not None for c in cl.status_changes)
+    assert "below in the new names" in cl.format_text()
+
+
+def test_an_uncertain_rename_is_counted_not_listed(tmp_path):
+    # the renamed bus also lost a device: not the same content, so no rename; its checks
+    # are counted, not listed one by one
+    old = _demo_snapshot(tmp_path, "a.toml")
+    new = _demo_snapshot(tmp_path, "b.toml", *_RENAME_BUS,
+                         ('  { ref = "U5", part = "rtc-i2c" },\n', ""))
+    cl = compare(old, new)
+    assert not cl.renames
+    lines = cl.group_lines()
+    assert "bus sensors (46 checks) is absent now" in lines
+    assert any(x.startswith("bus sensors-bus (") and x.endswith("is new") for x in lines)
+    # only a new check that warns or fails is listed, none of the passing ones
+    assert all(c.new in ("warn", "fail") for c in cl.status_changes)
+    assert not any(c.path.split("/")[0] == "sensors" for c in cl.status_changes)
+    assert not any(c.path.split("/")[0] in ("sensors", "sensors-bus")
+                   for c in cl.figure_changes)
+    # a device removed is one line, not a dump of its values
+    (u5,) = [pc for pc in cl.part_changes if pc.ref == "U5"]
+    assert u5.lines() == ["U5 part rtc-i2c → (absent); on sensors"]
+    assert len(cl.format_text().splitlines()) < 20
+
+
+def test_two_devices_of_one_part_renamed_are_not_guessed():
+    from pinlib.studies.compare.renames import find_renames
+
+    part = {"part": "eeprom-i2c", "buses": ["b"], "values": {}}
+    old = {"buses": [], "parts": {"U1": part, "U2": part}}
+    new = {"buses": [], "parts": {"U11": part, "U12": part}}
+    assert find_renames(old, new) == ({}, {})
+    new = {"buses": [], "parts": {"U11": part, "U2": part}}
+    assert find_renames(old, new) == ({}, {"U1": "U11"})
+
+
+def test_the_report_says_a_rename_once(tmp_path, capsys):
+    text = _DEMO.read_text(encoding="utf-8")
+    path = tmp_path / "board.toml"
+    path.write_text(text, encoding="utf-8")
+    assert main(["check", str(path), "--save"]) in (0, 1)
+    for old, new in _RENAME_BUS:
+        text = text.replace(old, new)
+    path.write_text(text, encoding="utf-8")
+    out = tmp_path / "r.html"
+    main(["report", str(path), "--html", str(out)])
+    capsys.readouterr()
+    html = out.read_text(encoding="utf-8")
+    assert "bus sensors renamed to sensors-bus; no other change." in html
+    assert "(absent)" not in html

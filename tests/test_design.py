@@ -69,6 +69,42 @@ BAD = {
     "bare-number": (ONE_BUS.replace('supply = "3.3 V"', 'supply = "3.3 V"\nextra_capacitance = 12')
                     .replace("PART", "t-target"), "bus[0].extra_capacitance", 9,
                     ["a bare number has no unit", '"12 pF"']),
+    # A range states what is accepted: 0 Hz is refused, so not "between 0 Hz and 100 GHz".
+    "zero-clock": (ONE_BUS.replace('supply = "3.3 V"', 'supply = "3.3 V"\nclock = "0 MHz"')
+                   .replace("PART", "t-target"), "bus[0].clock", 9,
+                   ["the clock must be above zero", "'0 MHz'",
+                    "expected more than 0 Hz and at most 100 GHz"]),
+    "clock-too-high": (ONE_BUS.replace('supply = "3.3 V"', 'supply = "3.3 V"\nclock = "200 GHz"')
+                       .replace("PART", "t-target"), "bus[0].clock", 9,
+                       ["outside the plausible range", "'200 GHz'",
+                        "expected more than 0 Hz and at most 100 GHz"]),
+    "negative-capacitance": (ONE_BUS.replace('supply = "3.3 V"',
+                                             'supply = "3.3 V"\nextra_capacitance = "-1 pF"')
+                             .replace("PART", "t-target"), "bus[0].extra_capacitance", 9,
+                             ["a negative value", "'-1 pF'", "expected at least 0 F and at most"]),
+    # A refusal quotes the value as written, with its unit, and says what is expected.
+    "negative-supply": (ONE_BUS.replace('"3.3 V"', '"-3.3 V"').replace("PART", "t-target"),
+                        "bus[0].supply", 8,
+                        ["the supply must be positive (got '-3.3 V')",
+                         "expected more than 0 V and at most 100 V"]),
+    "zero-device-supply": (ONE_BUS.replace('part = "PART" }',
+                                           'part = "t-target", supply = "0 mV" }'),
+                           "bus[0].devices[1].supply", 11,
+                           ["the supply must be positive (got '0 mV')", "more than 0 V"]),
+    "tolerance-too-wide": (ONE_BUS.replace('supply = "3.3 V"',
+                                           'supply = "3.3 V"\nsupply_tolerance = "60 %"')
+                           .replace("PART", "t-target"), "bus[0].supply_tolerance", 9,
+                           ["(got '60 %')", "expected at least 0 % and at most 50 %"]),
+    "quoted-number": (ONE_BUS.replace('protocol = "i2c"', 'protocol = "spi"\nspi_mode = "3"')
+                      .replace("PART", "t-target"), "bus[0].spi_mode", 8,
+                      ["not a whole number (got '3')", "expected a whole number, without quotes"]),
+    # A bare number's unit as an engineer means it: an SPI clock of 20 is 20 MHz.
+    "bare-spi-clock": (ONE_BUS.replace('protocol = "i2c"', 'protocol = "spi"\nclock = 20')
+                       .replace("PART", "t-target"), "bus[0].clock", 8,
+                       ['e.g. "20 MHz" or "20 kHz"']),
+    "bare-i2c-clock": (ONE_BUS.replace('supply = "3.3 V"', 'supply = "3.3 V"\nclock = "400"')
+                       .replace("PART", "t-target"), "bus[0].clock", 9,
+                       ['e.g. "400 kHz" or "400 MHz"']),
     "bus-trace-with-segments": (SEGMENTS.replace('protocol = "i2c"\n', 'protocol = "i2c"\ntrace = '
                                                  '{ length = "5 cm", capacitance = "1 pF/cm" }\n'),
                                 "bus[0].trace", 8, ["trace goes in the segments"]),

@@ -10,7 +10,16 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from pinlib.core.errors import UnitError
-from pinlib.core.quantity import UNITS, Threshold, format_si, parse, parse_ratio, parse_threshold
+from pinlib.core.quantity import (
+    UNITS,
+    Threshold,
+    format_si,
+    likely_units,
+    parse,
+    parse_ratio,
+    parse_threshold,
+    range_text,
+)
 
 # One inch is 25.4 mm and one mil a thousandth of it.
 INCH = 25.4e-3  # published: international yard and pound agreement (1959), 1 in = 25.4 mm
@@ -329,3 +338,49 @@ def test_format_si_agrees_with_quantiphy(mantissa, exponent, negative, unit, dig
 def test_format_si_rounding_edges_agree_with_quantiphy(value, digits):
     # values that round up into the next prefix, and the ends of the float range
     assert format_si(value, "F", digits) == _quantiphy_text(value, "F", digits)
+
+
+def test_range_text_says_whether_the_low_end_is_accepted():
+    # common practice, no source: the words of the test applied, so a refused 0 Hz is
+    # never inside the range an error states
+    assert range_text(0.0, 100e9, "Hz", above=True) == "more than 0 Hz and at most 100 GHz"
+    assert range_text(10e-6, 0.1, "m") == "at least 10 µm and at most 100 mm"
+    assert range_text(None, 3, "") == "at most 3"
+    assert range_text(1.0, 100.0) == "at least 1 and at most 100"
+    assert range_text(0, 1, above=True, below=True) == "more than 0 and less than 1"
+
+
+def test_a_refused_end_is_not_inside_the_stated_range():
+    # a confidence of exactly 1 was refused with "expected between 0 and 1"
+    from pinlib.core.errors import InputError
+    from pinlib.studies.whatif import wilson_interval
+
+    with pytest.raises(InputError) as info:
+        wilson_interval(2, 4, confidence=1.0)
+    assert info.value.expected == "more than 0 and less than 1"
+
+
+@pytest.mark.parametrize("x, unit, field, units", [
+    # common practice, no source: SPI clocks are written in MHz (1-100), I2C/SMBus clocks
+    # in kHz (100-1000), pull-ups in kΩ, series resistors in Ω, traces in cm, cables in m,
+    # board cross-sections in mm and copper in µm
+    (20, "Hz", "clock", ("MHz", "kHz")),
+    (1, "Hz", "clock", ("MHz", "kHz")),
+    (400, "Hz", "clock", ("kHz", "MHz")),
+    (4.7, "Ω", "pullup", ("kΩ", "Ω")),
+    (22, "Ω", "series_resistor", ("Ω", "kΩ")),
+    (9, "m", "length", ("cm", "mm")),
+    (0.5, "m", "length", ("m", "cm")),
+    (0.2, "m", "width", ("mm",)),
+    (35, "m", "thickness", ("µm",)),
+    (8, "F", "c_in", ("pF",)),
+    (3.3, "V", "supply", ("V",)),
+])
+def test_a_bare_number_is_offered_its_likely_units(x, unit, field, units):
+    assert likely_units(x, unit, field) == units
+    with pytest.raises(UnitError) as info:
+        parse(x, unit, field=field)
+    assert f'"{x} {units[0]}"' in info.value.hint
+    with pytest.raises(UnitError) as info:
+        parse(str(x), unit, field=field)
+    assert f'"{x} {units[0]}"' in info.value.hint

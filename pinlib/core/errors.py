@@ -99,6 +99,13 @@ class PinlibError(Exception):
             also=self.also,
         )
 
+    def with_hint(self, hint: str | None):
+        """The same error with ``hint`` in place of its own (a caller that goes on in its
+        own way gives its own advice, not the error's as well)."""
+        return type(self)(self.problem, file=self.file, line=self.line, field=self.field,
+                          value=self.value, expected=self.expected, hint=hint,
+                          also=self.also)
+
     @property
     def where(self) -> str:
         return self._place(self.file if self.line is None or not self.file

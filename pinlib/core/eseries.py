@@ -104,12 +104,14 @@ def _check_positive(x, field: str) -> np.ndarray:
         ) from None
     bad = ~(np.isfinite(arr) & (arr >= _X_MIN) & (arr <= _X_MAX))
     if np.any(bad):
+        from pinlib.core.quantity import range_text
+
         first = arr[bad].flat[0] if arr.ndim else float(arr)
         raise InputError(
             M.VALUE_OUT_OF_RANGE,
             field=field,
             value=float(first),
-            expected=f"a positive finite value between {_X_MIN:g} and {_X_MAX:g}",
+            expected=f"a positive finite value, {range_text(_X_MIN, _X_MAX)}",
         )
     return arr
 

@@ -39,6 +39,7 @@ __all__ = [
     "parse_threshold",
     "format_si",
     "format_value",
+    "range_text",
     "unit_name",
 ]
 
@@ -167,7 +168,7 @@ def parse(text: object, unit: str, *, field: str | None = None) -> float:
     if isinstance(text, bool):
         raise _fail(text, unit, field, M.YES_NO_AS_QUANTITY)
     if isinstance(text, (int, float)):
-        raise _fail(text, unit, field, M.BARE_NUMBER, hint=_bare_hint(text, unit))
+        raise _fail(text, unit, field, M.BARE_NUMBER, hint=_bare_hint(text, unit, field))
     if not isinstance(text, str):
         raise _fail(text, unit, field, M.TYPE_AS_QUANTITY.format(type=type(text).__name__))
     if len(text) > MAX_QUANTITY_TEXT:
@@ -179,12 +180,45 @@ def parse(text: object, unit: str, *, field: str | None = None) -> float:
     return value
 
 
-def _bare_hint(x: float, unit: str) -> str:
+#: The unit a bare number most likely meant where it does not depend on its size.
+_LIKELY = {"F": "pF", "s": "ns", "A": "mA", "W": "mW", "V": "V", "H": "nH"}
+
+
+def likely_units(x: float, unit: str, field: str | None = None) -> tuple[str, ...]:
+    """The one or two units a number written without one most likely meant, most likely
+    first, for the hint of a bare number (common practice, no source).
+
+    A clock under 100 is read in MHz first (SPI and GPIO clocks, 1 to 100 MHz; an I2C
+    Fast-mode Plus "1"), from 100 up in kHz first (I2C and SMBus clocks, 100 to 1000 kHz).
+    A resistance under 10 in kΩ first (a pull-up), from 10 up in Ω first (a series
+    resistor).  A board cross-section (``width``, ``height``, ``spacing``) in mm, copper
+    ``thickness`` in µm (mm under 1); another length as the project's designs write
+    them: traces in cm (then mm), under 1 in m (a cable, then cm)."""
+    x = abs(x)
+    leaf = (field or "").rsplit(".", 1)[-1]
+    if unit == "Hz":
+        return ("MHz", "kHz") if x < 100 else ("kHz", "MHz")
+    if unit == "Ω":
+        return ("kΩ", "Ω") if x < 10 else ("Ω", "kΩ")
+    if unit == "m":
+        if leaf in ("width", "height", "spacing"):
+            return ("mm",)
+        if leaf == "thickness":
+            return ("mm",) if x < 1 else ("µm",)
+        return ("m", "cm") if x < 1 else ("cm", "mm")
+    return (_LIKELY.get(unit) or UNITS[unit][1].split()[-1],)
+
+
+def _with_unit(number: str, x: float, unit: str, field: str | None) -> str:
+    """``"20 MHz" or "20 kHz"``: the number with its likeliest units."""
+    return " or ".join(f'"{number} {u}"' for u in likely_units(x, unit, field))
+
+
+def _bare_hint(x: float, unit: str, field: str | None = None) -> str:
     """How to write a bare number with its unit.  A bare number between 0 and 1 for a
     percentage is most likely a fraction (0.05 for 5 %): both readings are offered, the
     fraction's first."""
-    _, example = UNITS[unit]
-    hint = f"write it as a string with its unit, e.g. \"{x} {example.split()[-1]}\""
+    hint = f"write it as a string with its unit, e.g. {_with_unit(str(x), x, unit, field)}"
     if unit == "%" and 0 < x < 1:
         hint = (f"write it as a string with its unit: \"{x * 100:.10g} %\" if {x} is a "
                 f"fraction, or \"{x} %\" if you meant {x} percent")
@@ -222,9 +256,8 @@ def _parse_text(text: str, unit: str, field: str | None) -> float:
         raise _fail(text, unit, field, M.NOT_A_QUANTITY)
     number, rest = float(m.group(1)), m.group(2)
     if not rest:
-        _, example = UNITS[unit]
         raise _fail(text, unit, field, M.BARE_NUMBER,
-                    hint=f"add the unit, e.g. \"{m.group(1)} {example.split()[-1]}\"")
+                    hint=f"add the unit, e.g. {_with_unit(m.group(1), number, unit, field)}")
     rest = rest.replace("·", "").replace(" ", "")
     got = _split_unit(rest)
     if got is None:
@@ -397,6 +430,25 @@ def format_si(value, unit: str, digits: int = 3) -> str:
     if value == 0.0:
         return f"0 {unit}".strip()
     return _rendered(value, unit, digits)
+
+
+def range_text(lo: float | None, hi: float | None, unit: str = "", *,
+               above: bool = False, below: bool = False) -> str:
+    """What a range accepts, in the words of the test it applies, for an error's
+    ``expected``: ``"at least 10 µm and at most 100 mm"``; with ``above`` (the low end
+    itself refused) ``"more than 0 Hz and at most 100 GHz"``; with ``below`` (the high
+    end refused) ``"... and less than 1"``.  Without a unit the bounds are plain
+    numbers."""
+
+    def shown(x):
+        return format_si(x, unit) if unit else f"{x:g}"
+
+    ends = []
+    if lo is not None:
+        ends.append(f"{'more than' if above else 'at least'} {shown(lo)}")
+    if hi is not None:
+        ends.append(f"{'less than' if below else 'at most'} {shown(hi)}")
+    return " and ".join(ends)
 
 
 #: SI prefixes written by format_si, by engineering exponent (micro as the micro sign).

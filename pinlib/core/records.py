@@ -117,9 +117,9 @@ class Rule:
         elif isinstance(v, (int, float)) and (
                 (self.ge is not None and not v >= self.ge)
                 or (self.le is not None and not v <= self.le)):
-            lo = f"at least {self.ge}" if self.ge is not None else None
-            hi = f"at most {self.le}" if self.le is not None else None
-            return M.OUTSIDE_RANGE, " and ".join(b for b in (lo, hi) if b)
+            from pinlib.core.quantity import range_text
+
+            return M.OUTSIDE_RANGE, range_text(self.ge, self.le)
         return None
 
 
@@ -375,13 +375,13 @@ def _compile_record(cls) -> _Compiled:
 
 
 # ---------------------------------------------------------------------- the kinds
-def _of_kind(kinds, problem):
+def _of_kind(kinds, problem, expected=None):
     """A check that the value is one of ``kinds`` (an exact-type test: bool is not int)."""
 
     def conv(v, loc, issues):
         if type(v) in kinds:
             return v
-        issues.append(Issue(loc, "type", problem, v))
+        issues.append(Issue(loc, "type", problem, v, expected))
         return _FAIL
 
     conv.problem = problem
@@ -397,8 +397,12 @@ def _float(v, loc, issues):
         return _FAIL
     if t is int:
         return float(v)
-    issues.append(Issue(loc, "type", M.NOT_NUMBER, v))
+    issues.append(Issue(loc, "type", M.NOT_NUMBER, v, _NUMBER_EXPECTED))
     return _FAIL
+
+
+#: What a number field expects: TOML quotes make a number text ('er = "4.2"').
+_NUMBER_EXPECTED = "a plain number, without quotes or unit (e.g. 4.2)"
 
 
 _float.problem = M.NOT_NUMBER
@@ -419,7 +423,8 @@ def _date(v, loc, issues):
 _date.problem = M.NOT_DATE
 
 _SIMPLE = {str: _of_kind({str}, M.NOT_TEXT), bool: _of_kind({bool}, M.NOT_TRUE_OR_FALSE),
-           int: _of_kind({int}, M.NOT_WHOLE_NUMBER), float: _float, _dt.date: _date}
+           int: _of_kind({int}, M.NOT_WHOLE_NUMBER, "a whole number, without quotes (e.g. 3)"),
+           float: _float, _dt.date: _date}
 
 
 def _literal(allowed):

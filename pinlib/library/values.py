@@ -14,7 +14,7 @@ from typing import Any
 
 from pinlib.core import messages as M
 from pinlib.core.errors import UnitError
-from pinlib.core.quantity import Threshold, format_si, parse, parse_threshold
+from pinlib.core.quantity import Threshold, format_si, parse, parse_threshold, range_text
 from pinlib.core.valueclass import value_class
 
 __all__ = ["BASES", "Sourced", "sourced_parser", "threshold_parser"]
@@ -164,10 +164,10 @@ def sourced_parser(unit: str, lo: float | None = None, hi: float | None = None,
         # the value is quoted as written ("1e300 pF", not its SI form "1e288 F")
         if not signed and x < 0:
             raise UnitError(M.NEGATIVE_VALUE, field=field, value=str(text),
-                            expected="zero or more")
+                            expected=range_text(max(lo or 0.0, 0.0), hi, unit))
         if (lo is not None and x < lo) or (hi is not None and x > hi):
             raise UnitError(M.OUTSIDE_RANGE, field=field, value=str(text),
-                            expected=f"between {format_si(lo, unit)} and {format_si(hi, unit)}")
+                            expected=range_text(lo, hi, unit))
         return x
 
     def validate(raw, name=None):

@@ -53,6 +53,11 @@ class DesignSummary:
         ``"compared"``; None when not asked.
     notes : list of str
         Warnings met on the way (a damaged snapshot).
+    saved : str or None
+        The snapshot written beside the design, when asked (after any comparison with
+        the one it replaces).
+    save_error : str or None
+        Why that snapshot could not be written (the design was checked).
     """
 
     path: str
@@ -66,15 +71,20 @@ class DesignSummary:
     changes_text: str | None = None
     snapshot: str | None = None
     notes: list = field(default_factory=list)
+    saved: str | None = None
+    save_error: str | None = None
 
     @property
     def exit_code(self) -> int:
+        if self.save_error is not None:
+            return 2
         return {"error": 2, "fail": 1}.get(self.status, 0)
 
 
 def check_one(path, library_folders=(), against_snapshots: bool = False,
-              threshold: float | None = None) -> DesignSummary:
-    """Load and check one design; any :class:`PinlibError` becomes the summary's error."""
+              threshold: float | None = None, save: bool = False) -> DesignSummary:
+    """Load and check one design; any :class:`PinlibError` becomes the summary's error.
+    ``save``: write its snapshot beside it (atomically), after any comparison."""
     from pinlib.engines.dispatch import check_design
     from pinlib.model.design import load_design
 
@@ -94,6 +104,13 @@ def check_one(path, library_folders=(), against_snapshots: bool = False,
     out.result = result.to_json()
     if against_snapshots:
         _against_snapshot(out, design, result, threshold)
+    if save:
+        from pinlib.studies.compare import save_snapshot
+
+        try:
+            out.saved = str(save_snapshot(design, result))
+        except PinlibError as err:
+            out.save_error = err.message
     return out
 
 
@@ -128,7 +145,7 @@ def default_jobs(n_designs: int) -> int:
 
 def check_many(paths, library_folders=(), *, jobs: int | None = None,
                against_snapshots: bool = False, threshold: float | None = None,
-               progress=None) -> list[DesignSummary]:
+               progress=None, save: bool = False) -> list[DesignSummary]:
     """Check every design of ``paths``; the summaries in the order of ``paths``.
 
     Parameters
@@ -138,10 +155,12 @@ def check_many(paths, library_folders=(), *, jobs: int | None = None,
         designs are checked in this process.
     progress : bool, callable or None
         A bar counting designs (:func:`pinlib.core.progress.progress_bar`).
+    save : bool
+        Write each checked design's snapshot beside it (:func:`check_one`).
     """
     paths = [Path(p) for p in paths]
     jobs = default_jobs(len(paths)) if jobs is None else max(1, min(jobs, len(paths)))
-    args = (tuple(str(f) for f in library_folders), against_snapshots, threshold)
+    args = (tuple(str(f) for f in library_folders), against_snapshots, threshold, save)
     out: list[DesignSummary | None] = [None] * len(paths)
     if jobs == 1:
         with progress_bar(len(paths), desc="designs", unit="design", enabled=progress) as bar:

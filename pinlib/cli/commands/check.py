@@ -63,7 +63,7 @@ def add_parser(sub) -> None:
     p.add_argument("--library", metavar="DIR", action="append", default=[],
                    help="a team library folder (repeatable; takes precedence over the design's)")
     p.add_argument("--save", action="store_true",
-                   help="write the result beside the design as <design>.result.json; later "
+                   help="write the result beside each design as <design>.result.json; later "
                         "runs list what changed against it")
     p.add_argument("--threshold", metavar="PCT", type=threshold_type, default=None,
                    help="list figures that moved more than this against the saved result "
@@ -139,14 +139,14 @@ def _run_many(args, paths) -> int:
     from pinlib.studies.many import check_many
 
     for flag, given in (("--corners", args.corners), ("--monte-carlo", args.monte_carlo),
-                        ("--save", args.save), ("--seed", args.seed is not None)):
+                        ("--seed", args.seed is not None)):
         if given:
             raise InputError(M.ONE_DESIGN_ONLY, field=flag,
                              hint="run 'pinlib check DESIGN " + flag + "' on each design")
     progress = True if args.progress else None
     summaries = check_many(paths, args.library, jobs=args.jobs,
                            against_snapshots=args.against_snapshots,
-                           threshold=args.threshold, progress=progress)
+                           threshold=args.threshold, progress=progress, save=args.save)
     from pinlib.present.terminal import fitted
 
     for s in summaries:
@@ -155,6 +155,8 @@ def _run_many(args, paths) -> int:
                 path=s.path, message=s.error_here or s.error), sys.stderr), file=sys.stderr)
         for note in s.notes:
             print(fitted(f"pinlib: warning: {s.path}: {note}", sys.stderr), file=sys.stderr)
+        if s.save_error is not None:
+            print(fitted(f"pinlib: error: {s.save_error}", sys.stderr), file=sys.stderr)
     if args.json:
         json.dump([_many_json(s) for s in summaries], sys.stdout, indent=2, ensure_ascii=False)
         sys.stdout.write("\n")
@@ -163,7 +165,25 @@ def _run_many(args, paths) -> int:
         from pinlib.present.terminal import table_width
 
         sys.stdout.write(format_many(summaries, table_width()))
+    if args.save:
+        print(fitted(_saved_line(summaries), sys.stderr), file=sys.stderr)
     return max(s.exit_code for s in summaries)
+
+
+def _saved_line(summaries, shown: int = 3) -> str:
+    """What ``--save`` wrote over several designs, in one line: ``saved 2 snapshots, each
+    beside its design: a.result.json, b.result.json`` (the first ``shown`` named)."""
+    saved = [s.saved for s in summaries if s.saved is not None]
+    missed = len(summaries) - len(saved)
+    if len(saved) > shown + 1:
+        names = ", ".join(saved[:shown]) + f" and {len(saved) - shown} more"
+    else:
+        names = ", ".join(saved)
+    line = (f"saved {len(saved)} snapshot{'s' if len(saved) != 1 else ''}, each beside its "
+            f"design: {names}" if saved else "saved no snapshot")
+    if missed:
+        line += f"; {missed} design{'s' if missed != 1 else ''} not saved (above)"
+    return line
 
 
 def _many_json(s) -> dict:
@@ -176,6 +196,8 @@ def _many_json(s) -> dict:
         out["snapshot"] = s.snapshot
     if s.changes is not None:
         out["changes"] = s.changes
+    if s.saved is not None:
+        out["saved"] = s.saved
     return out
 
 
@@ -206,8 +228,9 @@ def _run_one(args) -> int:
         damaged: list = []
         changes = compare_with_snapshot(design, result, threshold, damaged=damaged)
         for err in damaged:  # named, then ignored: the check itself still runs
-            _warn(f"pinlib: warning: {err.message}; "
-                  + M.SNAPSHOT_IGNORED.format(design=args.design))
+            # its own advice (delete it, or save anew) in place of the error's: once
+            _warn("pinlib: warning: " + err.with_hint(
+                M.SNAPSHOT_IGNORED.format(design=args.design)).message)
     extra = _what_if(design, args, result)
     if args.json:
         out = result.to_json()

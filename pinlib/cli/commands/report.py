@@ -170,8 +170,9 @@ def run(args) -> int:
     damaged: list = []
     changes = compare_with_snapshot(design, result, threshold, damaged=damaged)
     for err in damaged:  # named, then ignored: the report is written without changes
-        print(fitted(f"pinlib: warning: {err.message}; "
-                     + M.SNAPSHOT_IGNORED.format(design=args.design), sys.stderr), file=sys.stderr)
+        print(fitted("pinlib: warning: " + err.with_hint(
+            M.SNAPSHOT_IGNORED.format(design=args.design)).message, sys.stderr),
+            file=sys.stderr)
     mc = None
     if args.monte_carlo is not None:
         mc = _monte_carlo(design, args.monte_carlo, args.seed, result)

@@ -142,8 +142,9 @@ def _table(rows) -> list[str]:
     for row in shown_changes(rows):
         if row.path != path:
             path = heads[len(cells)] = row.path
-        change = format_change(row.change).strip("()") if row.kind in ("moved", "same") else {
-            "added": "new", "removed": "gone", "changed": "differs"}.get(row.kind, "")
+        change = {"added": "new", "removed": "gone", "changed": "differs"}.get(row.kind, "")
+        if row.kind in ("moved", "same"):
+            change = format_change(row.change, row.old).strip("()")
         if row.kind == "same" and row.change == 0:
             change = ""
         cells.append(["*" if row.moved else "", figure_label(row.name),

@@ -8,7 +8,6 @@ from pathlib import Path
 from pinlib.core import messages as M
 from pinlib.core import protocols
 from pinlib.core.errors import DesignError
-from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import line_index
 from pinlib.core.valueclass import value_class
 from pinlib.library.loader import Library
@@ -114,10 +113,6 @@ def _bus(rb: RawBus, bloc, ids: set[str], r: _Resolver) -> Bus:
         raise err(M.BUS_HAS_NO_MODE.format(protocol=rb.protocol), bloc + ("mode",),
                   value=rb.mode,
                   hint="give its clock instead" if rb.protocol == "spi" else None)
-    if rb.clock is not None and not rb.clock > 0.0:
-        # Every engine divides by the clock (its period, its budget).
-        raise err(M.CLOCK_NOT_POSITIVE, bloc + ("clock",), value=format_si(rb.clock, "Hz"),
-                  expected='a clock such as "400 kHz"')
     if protocols.is_open_drain(rb.protocol):
         return _open_drain_bus(rb, bloc, mode, r.device, r.sections, r.cables, err)
     return _push_pull_bus(rb, bloc, r.device, r.sections, err)

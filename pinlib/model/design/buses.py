@@ -5,6 +5,7 @@ from __future__ import annotations
 
 from pinlib.core import messages as M
 from pinlib.core import protocols
+from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_of
 from pinlib.model.design.objects import Bus, Device, Line, Segment
@@ -65,7 +66,7 @@ def _segment(rb: RawBus, rs, sloc, si: int, count: int, device, sections, cables
         raise err(M.BUS_NEEDS_PULLUP_SUPPLY, sloc + ("supply",),
                   expected="supply = \"3.3 V\"")
     if supply <= 0:
-        raise err(M.SUPPLY_NOT_POSITIVE, sloc + ("supply",), value=supply)
+        raise err(M.SUPPLY_NOT_POSITIVE, sloc + ("supply",), value=format_si(supply, "V"))
     devices = tuple(device(d, sloc + ("devices", i)) for i, d in enumerate(rs.devices))
     seg_id = rs.id or (rb.id if count == 1 else f"{rb.id}-{si + 1}")
     cab = cables(rs.cables or (rb.cables if rs is not rb else ()), sloc + ("cables",))

@@ -8,7 +8,7 @@ from typing import Annotated, Literal
 from pinlib.core import messages as M
 from pinlib.core import protocols
 from pinlib.core.errors import DesignError
-from pinlib.core.quantity import format_si, parse
+from pinlib.core.quantity import parse, range_text
 from pinlib.core.records import Convert, Record, Rule, WrittenAs, field
 
 FORMAT = "pinlib.design/1"
@@ -19,15 +19,19 @@ SPI_SIGNALS = protocols.protocol("spi").signal_names
 SIGNAL_FUNCTION = protocols.SIGNAL_FUNCTION
 
 
-def _unit_validator(unit, lo=None, hi=None):
+def _unit_validator(unit, lo=None, hi=None, *, above=False, low_problem=None):
+    """A value with ``unit`` within ``lo``..``hi`` (``above``: ``lo`` itself refused).  A
+    refusal quotes the text as written and states the range in the words of this test
+    (:func:`pinlib.core.quantity.range_text`); ``low_problem`` names a value below it."""
+    expected = range_text(lo, hi, unit, above=above)
+
     def validate(raw, name=None):
         x = parse(raw, unit, field=name)
-        if x < 0 and unit not in ("V",):
-            raise DesignError(M.NEGATIVE_VALUE, value=raw, expected="zero or more")
-        if (lo is not None and x < lo) or (hi is not None and x > hi):
-            raise DesignError(M.OUTSIDE_RANGE, value=raw,
-                              expected=f"between {format_si(lo, unit)} and "
-                                       f"{format_si(hi, unit)}")
+        low = lo is not None and (x <= lo if above else x < lo)
+        if low or (hi is not None and x > hi):
+            problem = (low_problem if low and low_problem
+                       else M.NEGATIVE_VALUE if x < 0 <= (lo or 0) else M.OUTSIDE_RANGE)
+            raise DesignError(problem, value=raw, expected=expected)
         return x
 
     return validate
@@ -58,8 +62,8 @@ class _AsWritten(WrittenAs):
                 "description": f"{words}, or {text}"}
 
 
-def _unit(unit, lo=None, hi=None):
-    return Annotated[float, Convert(_unit_validator(unit, lo, hi)), _AsWritten(unit)]
+def _unit(unit, lo=None, hi=None, **how):
+    return Annotated[float, Convert(_unit_validator(unit, lo, hi, **how)), _AsWritten(unit)]
 
 
 def _auto_or(unit, lo=None, hi=None, words=("auto",)):
@@ -79,7 +83,11 @@ Length = _unit("m", 0.0, 1000.0)
 Capacitance = _unit("F", 0.0, 1e-6)
 Resistance = _unit("Ω", 0.0, 1e9)
 Voltage = _unit("V", -100.0, 100.0)
-Frequency = _unit("Hz", 0.0, 100e9)
+# A rail: every level and current is figured from it, so zero and below are refused here,
+# quoted as written.
+Supply = _unit("V", 0.0, 100.0, above=True, low_problem=M.SUPPLY_NOT_POSITIVE)
+# Every engine divides by the clock (its period, its budget): zero is refused here.
+Frequency = _unit("Hz", 0.0, 100e9, above=True, low_problem=M.CLOCK_NOT_POSITIVE)
 Ratio = _unit("%", 0.0, 1.0)
 # A tolerance that takes a pull-up or a supply down to zero leaves nothing to compute
 # (a 100 % pull-up tolerance is a 0 Ω pull-up at its low end); half is already far past
@@ -142,7 +150,7 @@ class RawDevice(Record):
     ref: Annotated[str, Rule(min_length=1, max_length=40)]
     part: str
     role: Literal["controller", "peripheral", "target"] = "peripheral"
-    supply: Voltage | None = None
+    supply: Supply | None = None
     switched: bool = False
     series_resistor: Resistance | None = None
     side: Literal["a", "b"] | None = None
@@ -153,7 +161,7 @@ class RawDevice(Record):
 
 class RawSegment(Record):
     id: str | None = None
-    supply: Voltage | None = None
+    supply: Supply | None = None
     supply_tolerance: Tolerance | None = None
     pullup: PullupSetting | None = None
     pullup_tolerance: Tolerance | None = None

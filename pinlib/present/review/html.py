@@ -312,9 +312,16 @@ class _Html:
         old = _badge(cl.old_status) if cl.old_status in _MARK else _e(cl.old_status or "—")
         new = _badge(cl.new_status) if cl.new_status in _MARK else _e(cl.new_status or "—")
         self.w(f"<p>Against the snapshot{_e(when)}: status {old} → {new}.</p>")
-        if cl.empty:
+        renamed = "; ".join(cl.rename_lines())
+        if cl.empty and renamed:
+            self.w(f'<p class="none">{_e(renamed)}; no other change.</p>')
+        elif cl.empty:
             self.w(f'<p class="none">No check changed status, no figure moved more than '
                    f"{_e(pct)}, no part value differs.</p>")
+        elif renamed:
+            self.w(f"<p>{_e(renamed)}; below in the new names.</p>")
+        if cl.groups:
+            self.w(f"<p>{_e('; '.join(cl.group_lines()))}.</p>")
         if cl.status_changes:
             self.w("<h3>Checks whose status changed</h3>", "<table><thead><tr>"
                    + "".join(f'<th scope="col">{x}</th>' for x in (
@@ -343,7 +350,7 @@ class _Html:
                 self.w(f"<tr><td>{_e(f.path)}</td><td>{_e(figure_label(f.name))}</td>"
                        f'<td class="num">{_e(format_figure(f.old, f.unit))}</td>'
                        f'<td class="num">{_e(format_figure(f.new, f.unit))}</td>'
-                       f'<td class="num">{_e(format_change(f.change) or f.kind)}</td></tr>')
+                       f'<td class="num">{_e(format_change(f.change, f.old) or f.kind)}</td></tr>')
             self.w("</tbody></table>")
         if cl.part_changes:
             self.w("<h3>Part values behind the change</h3>")

@@ -20,7 +20,8 @@ compares what they returned.
 
 The package's modules, each importing only those before it: ``snapshots`` (a result
 with its resolved parts and library, saved, read back), ``figures`` (figures and checks
-of two results side by side, the change threshold), ``changes`` (the change list:
+of two results side by side, the change threshold), ``renames`` (buses and references
+renamed, matched by content), ``changes`` (the change list:
 :func:`compare`, :func:`compare_with_snapshot`) and ``substitution`` (:func:`can_serve`,
 :func:`positions`, :func:`swap_refusals`, :func:`swapped_text`).  Beside the package,
 :mod:`pinlib.studies.snapshotfile` (where a snapshot lives) and

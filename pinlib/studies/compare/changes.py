@@ -21,6 +21,12 @@ from pinlib.studies.compare.figures import (
     format_change,
     format_figure,
 )
+from pinlib.studies.compare.renames import (
+    find_renames,
+    one_sided_groups,
+    renamed_snapshot,
+    top_id,
+)
 from pinlib.studies.compare.snapshots import load_snapshot, snapshot
 from pinlib.studies.snapshotfile import snapshot_path
 
@@ -107,7 +113,7 @@ class FigureChange:
 
     def format(self) -> str:
         """``path: Label old → new (change)``, the figure under its readable label."""
-        change = format_change(self.change) if self.kind in ("moved", "same") else {
+        change = format_change(self.change, self.old) if self.kind in ("moved", "same") else {
             "added": "(new)", "removed": "(gone)"}.get(self.kind, "")
         return (f"{self.path}: {figure_label(self.name)} {format_figure(self.old, self.unit)} "
                 f"{_ARROW} {format_figure(self.new, self.unit)} {change}").rstrip()
@@ -237,6 +243,8 @@ class PartChange:
             head += f" part {self.new_part}: values differ"
         if self.buses:
             head += f"; on {', '.join(self.buses)}"
+        if self.old_part is None or self.new_part is None:
+            return [head]  # a device placed or removed: its values are not changes
         shown_part = self.new_part if self.new_part is not None else self.old_part
         return [head] + ["  " + v.format(self.ref, shown_part) for v in self.values]
 
@@ -259,11 +267,29 @@ class ChangeList:
     notes: list[str] = field(default_factory=list)
     old_created: str | None = None
     new_created: str | None = None
+    # (kind, old name, new name): a bus or a device reference renamed, found by content
+    renames: list[tuple] = field(default_factory=list)
+    # (side, kind, id, checks): a bus or coupling present on one side only ("absent"
+    # or "new"), counted instead of listed check by check
+    groups: list[tuple] = field(default_factory=list)
 
     @property
     def empty(self) -> bool:
-        """True when no check changed status, no figure moved and no part value differs."""
-        return not (self.status_changes or self.figure_changes or self.part_changes)
+        """True when no check changed status, no figure moved, no part value differs and
+        no bus or coupling appeared or disappeared (a rename alone leaves it empty)."""
+        return not (self.status_changes or self.figure_changes or self.part_changes
+                    or self.groups)
+
+    def rename_lines(self) -> list[str]:
+        """``bus i2c renamed to sensors-bus``, ``U6 renamed to U16``."""
+        return [f"{'bus ' if kind == 'bus' else ''}{old} renamed to {new}"
+                for kind, old, new in self.renames]
+
+    def group_lines(self) -> list[str]:
+        """``bus i2c (23 checks) is absent now``, ``bus sensors-bus (23 checks) is new``."""
+        return [f"{kind} {gid} ({n} check{'s' if n != 1 else ''}) is "
+                f"{'absent now' if side == 'absent' else 'new'}"
+                for side, kind, gid, n in self.groups]
 
     def to_json(self) -> dict:
         return {
@@ -276,6 +302,9 @@ class ChangeList:
             "status_changes": [c.to_json() for c in self.status_changes],
             "figure_changes": [c.to_json() for c in self.figure_changes],
             "part_changes": [c.to_json() for c in self.part_changes],
+            "renames": [{"kind": k, "old": o, "new": n} for k, o, n in self.renames],
+            "groups": [{"side": sd, "kind": k, "id": g, "checks": n}
+                       for sd, k, g, n in self.groups],
             "notes": list(self.notes),
         }
 
@@ -285,9 +314,16 @@ class ChangeList:
         when = f" saved {self.old_created}" if self.old_created else ""
         out = [f"Changes against the snapshot{when}: status {self.old_status or '—'} "
                f"{_ARROW} {self.new_status or '—'}"]
-        if self.empty:
+        renamed = "; ".join(self.rename_lines())
+        if self.empty and renamed:
+            out.append(f"  {renamed}; no other change")
+        elif self.empty:
             out.append(f"  no check changed status, no figure moved more than {pct}, "
                        "no part value differs")
+        elif renamed:
+            out.append(f"  {renamed}; below in the new names")
+        if self.groups:
+            out.append("  " + "; ".join(self.group_lines()))
         if self.status_changes:
             out.append("Checks whose status changed:")
             out += ["  " + c.format() for c in self.status_changes]
@@ -360,10 +396,21 @@ def compare(old_snapshot: dict, new_snapshot: dict, *, threshold: float = DEFAUL
     if old_snapshot.get("design") != new_snapshot.get("design"):
         cl.notes.append(f"the snapshot is of design {old_snapshot.get('design')!r}, this is "
                         f"{new_snapshot.get('design')!r}")
+    buses, refs = find_renames(old_snapshot, new_snapshot)
+    if buses or refs:
+        old_snapshot = renamed_snapshot(old_snapshot, buses, refs)
+        cl.renames = ([("bus", o, n) for o, n in buses.items()]
+                      + [("device", o, n) for o, n in refs.items()])
+    absent, fresh = one_sided_groups(old_snapshot, new_snapshot)
+    cl.groups = ([("absent", kind, g, n) for g, (kind, n) in absent.items()]
+                 + [("new", kind, g, n) for g, (kind, n) in fresh.items()])
 
     for o, n in _paired_checks(_checks(old_snapshot), _checks(new_snapshot)):
         os_, ns_ = (o or {}).get("status"), (n or {}).get("status")
-        if os_ == ns_:
+        top = top_id((n or o)["_path"])
+        # a bus or coupling on one side only is counted (group_lines); of a new one only
+        # the checks that warn or fail are listed
+        if os_ == ns_ or top in absent or (top in fresh and ns_ in ("pass", None)):
             continue
         ref = n or o
         old_subject = (o or {}).get("subject")
@@ -376,7 +423,7 @@ def compare(old_snapshot: dict, new_snapshot: dict, *, threshold: float = DEFAUL
             old_subject if o and n and old_subject != ref.get("subject") else None))
 
     for row in figure_rows(old_snapshot, new_snapshot, threshold=threshold):
-        if row.moved:
+        if row.moved and top_id(row.path) not in absent and top_id(row.path) not in fresh:
             cl.figure_changes.append(FigureChange(row.path, row.name, row.unit, row.old,
                                                   row.new, row.change, row.kind))
 

@@ -10,6 +10,7 @@ from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.quantity import format_value, parse_ratio
 from pinlib.core.valueclass import value_class
+from pinlib.model.result import MARGIN_SHOWN
 
 #: A figure that moves by more than this fraction of its old value is listed (5 %).
 DEFAULT_THRESHOLD = 0.05
@@ -88,13 +89,27 @@ def _is_number(x) -> bool:
 format_figure = format_value
 
 
-def format_change(rel: float | None) -> str:
-    """A relative change as text: ``(+12.5 %)``; ``(from zero)``; empty for none."""
+def format_change(rel: float | None, old=None) -> str:
+    """A relative change as text, never in exponent form: ``(+12.5 %)`` (three significant
+    digits) up to ±999 %; a positive figure that grew further by its factor, ``(×187)``;
+    other changes beyond that as :func:`pinlib.model.result.percent_text` shows margins,
+    ``(> +999 %)`` / ``(< -999 %)``; ``(< 0.001 %)``; ``(from zero)``; empty for none.
+
+    ``old`` is the figure's old value (the factor is ``new / old`` only where it is
+    positive)."""
     if rel is None:
         return ""
     if math.isinf(rel):
         return "(from zero)"
-    return f"({rel * 100:+.3g} %)"
+    pct = rel * 100
+    if pct != 0 and abs(pct) < 1e-3:
+        return "(< 0.001 %)"
+    if abs(pct) < MARGIN_SHOWN + 0.5:
+        return f"({pct:+.3g} %)"
+    if pct > 0 and _is_number(old) and old > 0:
+        factor = 1.0 + rel
+        return f"(×{factor:.3g})" if factor < 100 else f"(×{factor:,.0f})"
+    return f"(> +{MARGIN_SHOWN} %)" if pct > 0 else f"(< -{MARGIN_SHOWN} %)"
 
 
 @value_class

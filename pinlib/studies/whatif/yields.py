@@ -7,6 +7,7 @@ from statistics import NormalDist
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.core.quantity import range_text
 from pinlib.core.valueclass import value_class
 
 #: Confidence level of the pass-fraction intervals.
@@ -53,7 +54,7 @@ def wilson_interval(passes: int, n: int, confidence: float = CONFIDENCE) -> tupl
                          expected="0 <= passes <= n, n >= 1")
     if not 0 < confidence < 1:
         raise InputError(M.NOT_A_CONFIDENCE, field="confidence", value=confidence,
-                         expected="between 0 and 1")
+                         expected=range_text(0, 1, above=True, below=True))
     z = NormalDist().inv_cdf(0.5 + confidence / 2.0)
     p = passes / n
     denom = 1.0 + z * z / n
