@@ -75,6 +75,38 @@ def test_demo_design_json(capsys):
     assert statuses.count("pass") > 0.8 * len(statuses)
 
 
+def _json_checks(node):
+    """Every check object in a result's JSON, wherever it sits (bus, segment, line,
+    coupling)."""
+    if isinstance(node, dict):
+        if {"id", "status", "source", "message"} <= set(node):
+            yield node
+        for v in node.values():
+            yield from _json_checks(v)
+    elif isinstance(node, list):
+        for v in node:
+            yield from _json_checks(v)
+
+
+def test_json_gives_a_fix_where_the_text_does(capsys):
+    """A check's `fix` goes with a problem, by the one rule the text follows
+    (`Check.advice`): a passing check carries none in the JSON either, even where its
+    rule states one (the demo's line-delay checks), and a failing or warning check
+    carries its own."""
+    from pinlib.engines.dispatch import check_file
+
+    result = check_file(DEMO)
+    checks = [c for r in result.results() for _, _, c in r.all_checks()]
+    stated = [c for c in checks if c.status == "pass" and c.fix]
+    assert stated, "the demo no longer has a passing check that states a fix"
+    _, doc = run_json([str(DEMO)], capsys)
+    shown = list(_json_checks(doc))
+    assert len(shown) == len(checks)
+    assert not [c for c in shown if c["status"] == "pass" and "fix" in c]
+    assert sorted(c["fix"] for c in shown if "fix" in c) == sorted(
+        c.advice for c in checks if c.advice)
+
+
 def test_demo_design_text(capsys):
     # the full tables moved to --detail (issue 15: the default prints problems first)
     code = main(["check", str(DEMO), "--detail"])

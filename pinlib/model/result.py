@@ -106,7 +106,7 @@ class Check:
     def advice(self) -> str | None:
         """The fix to show people: a failing or warning check's ``fix``, and None for a
         check that passes (a rule may state its fix whatever the status; advice goes with
-        a problem only).  Every text that shows a fix reads it here."""
+        a problem only).  Every text that shows a fix reads it here, and so does the JSON."""
         return None if self.status == "pass" else self.fix
 
     def to_json(self) -> dict:
@@ -122,8 +122,8 @@ class Check:
         }
         if self.subject:
             out["subject"] = self.subject
-        if self.fix:
-            out["fix"] = self.fix
+        if self.advice:  # the fix the text shows: on a failing or warning check only
+            out["fix"] = self.advice
         if self.reason:
             out["reason"] = self.reason
         if self.details:
