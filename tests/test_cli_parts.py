@@ -320,6 +320,32 @@ def test_record_refusals_leave_files_alone(lib, capsys):
     assert (builtin / "flash.toml").read_text(encoding="utf-8") == FLASH
 
 
+@pytest.mark.parametrize("typ, problem", [("banana", "not a number with a unit"),
+                                          ("3 V", "a value in V where a capacitance"),
+                                          ("-3 pF", "a negative value")])
+def test_record_names_the_typ_field_it_refuses(lib, capsys, typ, problem):
+    # Once "field 'pins.sda.c_in'" for a bad --typ beside a good value: the user wrote
+    # the typical value, and the field to fix is its .typ.
+    before = (lib[1] / "eeprom.toml").read_bytes()
+    code, _, err = run(capsys, "parts", "record", "eeprom", "sda.c_in", "5 pF", "--typ", typ,
+                       "--source", "rev B", "--library", "team")
+    err = " ".join(err.split())
+    assert code == 2 and "field 'pins.sda.c_in.typ'" in err, err
+    assert problem in err and f"(got '{typ}')" in err and "team/eeprom.toml:10" in err
+    assert (lib[1] / "eeprom.toml").read_bytes() == before
+
+
+def test_check_names_the_typ_field_of_a_file(lib, capsys, tmp_path):
+    # the same field where the typical value is written in the file by hand
+    bad = tmp_path / "bad"
+    bad.mkdir()
+    (bad / "a.toml").write_text(EEPROM.replace('id = "eeprom"', 'id = "a"').replace(
+        '"8 pF"', '{ value = "8 pF", typ = "5 pH" }'), encoding="utf-8")
+    code, out, _ = run(capsys, "parts", "check", "bad", "--library", "team")
+    assert code == 1
+    assert "bad/a.toml:10, field 'pins.sda.c_in.typ'" in out, out
+
+
 def test_record_needs_a_source(lib, capsys):
     with pytest.raises(SystemExit) as info:
         main(["parts", "record", "eeprom", "sda.c_in", "5 pF", "--library", "team"])

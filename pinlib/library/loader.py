@@ -113,7 +113,8 @@ def record_errors(exc: RecordError, *, file=None, locate=None, cls=LibraryError,
         line = locate(where, loc) if locate else None
         inner = issue.error
         if inner is not None:
-            out.append(cls(inner.problem, file=where, line=line, field=dotted or inner.field,
+            out.append(cls(inner.problem, file=where, line=line,
+                           field=_within(dotted, loc, inner.field),
                            value=inner.value, expected=inner.expected, hint=inner.hint))
             continue
         hint, expected = None, issue.expected
@@ -126,6 +127,18 @@ def record_errors(exc: RecordError, *, file=None, locate=None, cls=LibraryError,
         out.append(cls(issue.problem, file=where, line=line, field=dotted, value=value,
                        expected=expected, hint=hint))
     return out
+
+
+def _within(dotted: str, loc: tuple, field: str | None) -> str | None:
+    """The field an issue names: its place in the file (``dotted``), and below it a
+    typical value its converter refused, a second number beside the value (the converter
+    of ``c_in`` names ``c_in.typ``: the field is ``pins.sda.c_in.typ``, not the value's)."""
+    if not dotted:
+        return field
+    last = str(loc[-1]) if loc else ""
+    if last and field == last + ".typ":
+        return dotted + ".typ"
+    return dotted
 
 
 def _merge(parent: dict, child: dict, parent_origin: dict, child_id: str, top=True) -> tuple:

@@ -187,7 +187,8 @@ def _validate(library: loader.Library, part_id: str, path: Path, text: str,
         part = loader._resolve(part_id, files)
     except loader._Many as many:
         errors = many.errors
-        mine = [e for e in errors if field and e.field == field] or errors
+        mine = [e for e in errors if field and (e.field == field or (e.field or "")
+                                                 .startswith(field + "."))] or errors
         raise _refusal(mine[0], path, field, old_text) from None
     except LibraryError as err:
         raise _refusal(err, path, field, old_text) from None
@@ -222,9 +223,11 @@ def _refusal(err: PinlibError, path: Path, field: str | None, old_text: str | No
     if field is None:
         return err
     line = None if old_text is None else line_of(line_index(old_text), tuple(field.split(".")))
-    if err.field == field:
+    if err.field == field or (err.field or "").startswith(field + "."):
+        # the value, or a part of it the command wrote (its --typ: "pins.sda.c_in.typ")
         return LibraryError(M.VALUE_REFUSED.format(problem=err.problem), file=str(path), line=line,
-                            field=field, value=err.value, expected=err.expected, hint=err.hint)
+                            field=err.field, value=err.value, expected=err.expected,
+                            hint=err.hint)
     return LibraryError(M.PART_WOULD_NOT_VALIDATE, file=str(path),
                         line=line, field=field, hint=err.message)
 
