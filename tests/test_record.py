@@ -253,6 +253,25 @@ def test_refuses_to_write_into_the_builtin_library(lib_dirs):
     assert sorted(p.name for p in (builtin / "generic").iterdir()) == ["base.toml"]
 
 
+@pytest.mark.parametrize("title, head", [
+    ("Line one\nformat = 3", "# Line one format = 3"),
+    ("tab\tand\r\nreturn", "# tab and return"),
+    ("bell\x07", "# bell"),
+    ("next\x85line", "# next line"),
+    ("para\u2029graph", "# para graph"),
+])
+def test_a_title_with_a_line_break_stays_one_comment(lib_dirs, title, head):
+    # Once a traceback (TOMLDecodeError): the title, written as the first comment, was cut
+    # by its line break, and the rest read as TOML ("format = 3" a second format key) or
+    # held a character no TOML comment may hold.  The title itself is kept as given.
+    _, team = lib_dirs
+    lib = load(team)
+    path = new_part(lib, "fresh", "base", team, title=title)
+    text = path.read_text(encoding="utf-8")
+    assert tomllib.loads(text)["title"] == title
+    assert load(team).parts["fresh"].title == title
+    assert text.splitlines()[0] == head
+
 def test_new_part_refusals(lib_dirs, tmp_path):
     _, team = lib_dirs
     lib = load(team)

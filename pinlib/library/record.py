@@ -84,6 +84,12 @@ def _toml_string(text: str) -> str:
     return tomlkit.string(text).as_string()
 
 
+def _comment_text(text: str) -> str:
+    """``text`` fit for one TOML comment: each run of white space, line break or other
+    character a comment may not hold (or an editor would break the line at) one space."""
+    return " ".join("".join(ch if ch.isprintable() else " " for ch in text).split())
+
+
 def new_part(library: loader.Library, new_id: str, from_class: str,
              into_folder: str | Path, title: str | None = None, *,
              basis: str = "datasheet", source: str = "") -> Path:
@@ -133,7 +139,7 @@ def new_part(library: loader.Library, new_id: str, from_class: str,
     today = _dt.date.today()
     title = parent.title if title is None else title
     text = "\n".join([
-        f"# {title}",
+        f"# {_comment_text(title)}",
         f"# A team part that extends '{from_class}' and inherits all of its values.",
         "# Record this part's own values with their sources, e.g.",
         f"#   pinlib parts record {new_id} PIN.FIELD \"VALUE\" "
