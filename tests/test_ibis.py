@@ -395,6 +395,24 @@ def test_imported_part_loads_and_is_checked_in_a_design(tmp_path, capsys):
     assert cb["class"] - cb["imported"] == pytest.approx(8e-12 - 3.9e-12, rel=1e-6)
 
 
+def test_an_imported_part_file_opens_with_comments_of_80_columns(tmp_path, capsys):
+    # Once a line of 91 columns: the component and a file name of up to 40 characters
+    # each (IBIS allows that much) in one comment.
+    from pinlib.cli import main
+    name = "an-invented-buffer-model-file-abcdef.ibs"
+    ibs = tmp_path / "invented.ibs"
+    ibs.write_text(ibis_text(model_type="Open_drain").replace(
+        "[File Name]  invented.ibs", f"[File Name]  {name}"))
+    parts = tmp_path / "parts"
+    code = main(["parts", "import", str(ibs), "--component", "DEMO-IO", "--pin", "SDA=i2c-sda",
+                 "--pin", "SCL=i2c-scl", "--id", "demo-io", "--into", str(parts)])
+    assert code == 0, capsys.readouterr().err
+    lines = (parts / "demo-io.toml").read_text(encoding="utf-8").splitlines()
+    head = lines[:lines.index('format = "pinlib.part/1"')]
+    assert all(x.startswith("#") and len(x) <= 80 for x in head), head
+    assert " ".join(x[2:] for x in head).startswith(
+        f"DEMO-IO, imported from the IBIS file {name} (rev 1.2).")
+
 def test_import_of_a_push_pull_pin_writes_r_out(tmp_path, capsys):
     from pinlib.library.loader import load_library
     parts = tmp_path / "parts"

@@ -272,6 +272,37 @@ def test_a_title_with_a_line_break_stays_one_comment(lib_dirs, title, head):
     assert load(team).parts["fresh"].title == title
     assert text.splitlines()[0] == head
 
+@pytest.mark.parametrize("new_id", ["b", "x" * 64])
+def test_a_new_part_file_fits_80_columns(lib_dirs, new_id):
+    # Once past 80 columns: the comments gave the title, the class (an id of up to 64
+    # characters) and the example command a line each (the command passed 80 with any
+    # id but one of a single character).
+    builtin, team = lib_dirs
+    long_class = "a-very-long-generic-class-id-for-a-level-translator-with-enable1"
+    assert len(long_class) == 64
+    (builtin / "generic" / "long.toml").write_text(
+        BASE.replace('id = "base"', f'id = "{long_class}"'), encoding="utf-8")
+    lib = load(team)
+    title = ("Second-source serial EEPROM, 2 Mbit, 1.7 to 5.5 V, from the approved vendor "
+             "list of the 2027 build, with its own lot-dependent input capacitance")
+    path = new_part(lib, new_id, long_class, team, title=title)
+    text = path.read_text(encoding="utf-8")
+    data = tomllib.loads(text)
+    assert data["extends"] == long_class and data["title"] == title
+    comments = [x for x in text.splitlines() if x.startswith("#")]
+    assert all(len(x) <= 80 for x in comments), [x for x in comments if len(x) > 80]
+    # the words are all there, in their order, each line still a comment
+    said = " ".join(x[1:].strip() for x in comments)
+    assert said.startswith(title + " A team part that extends")
+    assert f"'{long_class}'" in said
+    # the example command, continued with a backslash where it is cut
+    at = next(i for i, x in enumerate(comments) if "pinlib parts record" in x)
+    command = comments[at:at + 1 + sum(x.endswith(" \\") for x in comments[at:])]
+    assert len(command) >= 2 and all(x.endswith(" \\") for x in command[:-1])
+    assert " ".join(x[1:].strip(" \\") for x in command) == (
+        f'pinlib parts record {new_id} PIN.FIELD "VALUE" --source "document, revision, table"')
+
+
 def test_new_part_refusals(lib_dirs, tmp_path):
     _, team = lib_dirs
     lib = load(team)

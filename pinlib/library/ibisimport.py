@@ -24,6 +24,7 @@ from pinlib.library.ibis import IbisFile
 from pinlib.library.ibisderive import Derived, _model_of, derive_pin
 from pinlib.library.record import (
     _check_id,
+    _comment,
     _refuse_builtin,
     _toml_string,
     team_folder,
@@ -100,7 +101,8 @@ def part_text(ibis: IbisFile, component: str, pins: dict[str, str], new_id: str,
                            expected="one of " + ", ".join(CATEGORIES))
     name = ibis.header.get("file name", "") or Path(ibis.path).name
     source = f"{name} rev {ibis.file_rev}, [Component] {component}"
-    lines = [f"# {component}, imported from the IBIS file {name} (rev {ibis.file_rev}).",
+    lines = [*_comment(f"{component}, imported from the IBIS file {name} "
+                       f"(rev {ibis.file_rev})."),
              "# Every value was read or derived from the file; its source names the",
              "# [Model] and the corner used.",
              f"format = {_toml_string(FORMAT)}", f"id = {_toml_string(new_id)}",

@@ -20,6 +20,7 @@ import copy
 import datetime as _dt
 import difflib
 import re
+import textwrap
 from pathlib import Path
 
 import tomlkit
@@ -84,10 +85,33 @@ def _toml_string(text: str) -> str:
     return tomlkit.string(text).as_string()
 
 
+#: The widest line of the comments a new part file opens with (a terminal's columns).
+COMMENT_WIDTH = 80
+
+
 def _comment_text(text: str) -> str:
     """``text`` fit for one TOML comment: each run of white space, line break or other
     character a comment may not hold (or an editor would break the line at) one space."""
     return " ".join("".join(ch if ch.isprintable() else " " for ch in text).split())
+
+
+def _comment(text: str) -> list[str]:
+    """``text`` as TOML comment lines of at most :data:`COMMENT_WIDTH` columns."""
+    return textwrap.wrap(_comment_text(text), COMMENT_WIDTH, initial_indent="# ",
+                         subsequent_indent="# ", break_on_hyphens=False) or ["#"]
+
+
+def _command_comment(words: list[str]) -> list[str]:
+    """A command as comment lines of at most :data:`COMMENT_WIDTH` columns, each line
+    but the last continued with `` \\`` (``words``: the pieces kept whole)."""
+    lines, line = [], "#   " + words[0]
+    for word in words[1:]:
+        if len(line) + len(word) + 3 > COMMENT_WIDTH:  # a space, the word, " \\" after it
+            lines.append(line + " \\")
+            line = "#     " + word
+        else:
+            line += " " + word
+    return lines + [line]
 
 
 def new_part(library: loader.Library, new_id: str, from_class: str,
@@ -139,11 +163,11 @@ def new_part(library: loader.Library, new_id: str, from_class: str,
     today = _dt.date.today()
     title = parent.title if title is None else title
     text = "\n".join([
-        f"# {_comment_text(title)}",
-        f"# A team part that extends '{from_class}' and inherits all of its values.",
+        *_comment(title),
+        *_comment(f"A team part that extends '{from_class}' and inherits all of its values."),
         "# Record this part's own values with their sources, e.g.",
-        f"#   pinlib parts record {new_id} PIN.FIELD \"VALUE\" "
-        "--source \"document, revision, table\"",
+        *_command_comment(["pinlib parts record", new_id, 'PIN.FIELD "VALUE"',
+                           '--source "document, revision, table"']),
         f"format = {_toml_string(FORMAT)}",
         f"id = {_toml_string(new_id)}",
         f"title = {_toml_string(title)}",
