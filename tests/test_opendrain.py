@@ -782,6 +782,28 @@ def test_margin_text_beyond_a_thousand_percent_says_only_beyond():
     assert percent_text(float("inf")) == "—" and percent_text(None) == "—"
 
 
+
+def test_a_tiny_margin_reads_without_an_exponent():
+    from pinlib.model.result import check_max, margin_text, percent_text
+    from pinlib.studies.compare import format_change
+
+    # derived: (300 − 299.99997) / 300 = +1e-7 = +1e-05 %: once printed "+1e-05 %"
+    tiny = check_max("x", 300 - 3e-5, 300.0, "s", "s", "m")
+    assert tiny.margin == pytest.approx(1e-7)
+    assert margin_text(tiny) == "< 0.001 %"
+    # derived: (300 − 300.00003) / 300 = −1e-7: failing by a hair keeps its minus sign
+    hair = check_max("x", 300 + 3e-5, 300.0, "s", "s", "m")
+    assert hair.status == "fail" and margin_text(hair) == "> -0.001 %"
+    # one rule with the change lists' (format_change keeps its parentheses)
+    for m in (1e-7, -1e-7, 4e-6, -9.99e-6):
+        assert format_change(m, 1.0) == f"({percent_text(m)})"
+    # no exponent form at any size, with any number of decimals
+    for k in range(-15, 4):
+        for m in (10.0 ** k, -(10.0 ** k), 3.3 * 10.0 ** k, -9.6 * 10.0 ** k):
+            for decimals in (0, 1, 2):
+                assert "e" not in percent_text(m, decimals), (m, decimals)
+
+
 # --------------------------------------------------------------------------- issue 13.10
 
 

@@ -27,7 +27,9 @@ __all__ = [
     "check_true",
     "margin_text",
     "percent_text",
+    "tiny_percent_text",
     "MARGIN_SHOWN",
+    "PERCENT_TINY",
     "figure_text",
     "rule_of_thumb",
     "min_margin",
@@ -156,11 +158,28 @@ def margin_text(c: Check) -> str:
 MARGIN_SHOWN = 999
 
 
+#: The smallest percentage written as a number: a non-zero one nearer to zero reads
+#: "< 0.001 %" (a margin or a change of +1e-05 %; "> -0.001 %" below zero), never in
+#: exponent form.
+PERCENT_TINY = 1e-3
+
+
+def tiny_percent_text(pct: float) -> str | None:
+    """A percentage (``pct``, in percent) nearer to zero than :data:`PERCENT_TINY`, and not
+    zero, as text: ``< 0.001 %``, below zero ``> -0.001 %``; None for any other.  The one
+    rule of :func:`percent_text` and of the change lists
+    (:func:`pinlib.studies.compare.format_change`)."""
+    if pct == 0 or not abs(pct) < PERCENT_TINY:
+        return None
+    return f"< {PERCENT_TINY:g} %" if pct > 0 else f"> -{PERCENT_TINY:g} %"
+
+
 def percent_text(m, decimals: int = 0) -> str:
     """A relative margin (a ratio) as a signed percentage with ``decimals`` decimals:
     ``+12 %``; beyond ±:data:`MARGIN_SHOWN` % ``> +999 %`` / ``< -999 %``; "—" where
     it is None or not finite.  With no decimals a margin under 0.5 % keeps one
-    significant digit (never "-0 %" for a check that fails by a hair)."""
+    significant digit (never "-0 %" for a check that fails by a hair), and one under
+    0.001 % reads ``< 0.001 %`` (:func:`tiny_percent_text`), never ``+1e-05 %``."""
     if m is None:
         return "—"
     m = float(m)
@@ -170,7 +189,7 @@ def percent_text(m, decimals: int = 0) -> str:
     if abs(round(pct, decimals)) > MARGIN_SHOWN:
         return f"< -{MARGIN_SHOWN} %" if pct < 0 else f"> +{MARGIN_SHOWN} %"
     if decimals == 0 and pct != 0 and abs(pct) < 0.5:
-        return f"{pct:+.1g} %"
+        return tiny_percent_text(pct) or f"{pct:+.1g} %"
     return f"{pct:+.{decimals}f} %"
 
 

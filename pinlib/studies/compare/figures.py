@@ -10,7 +10,7 @@ from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.quantity import format_value, parse_ratio
 from pinlib.core.valueclass import value_class
-from pinlib.model.result import MARGIN_SHOWN
+from pinlib.model.result import MARGIN_SHOWN, tiny_percent_text
 
 #: A figure that moves by more than this fraction of its old value is listed (5 %).
 DEFAULT_THRESHOLD = 0.05
@@ -93,7 +93,9 @@ def format_change(rel: float | None, old=None) -> str:
     """A relative change as text, never in exponent form: ``(+12.5 %)`` (three significant
     digits) up to ±999 %; a positive figure that grew further by its factor, ``(×187)``;
     other changes beyond that as :func:`pinlib.model.result.percent_text` shows margins,
-    ``(> +999 %)`` / ``(< -999 %)``; ``(< 0.001 %)``; ``(from zero)``; empty for none.
+    ``(> +999 %)`` / ``(< -999 %)``; one nearer to zero than 0.001 % as it shows them too
+    (:func:`pinlib.model.result.tiny_percent_text`), ``(< 0.001 %)`` / ``(> -0.001 %)``;
+    ``(from zero)``; empty for none.
 
     ``old`` is the figure's old value (the factor is ``new / old`` only where it is
     positive)."""
@@ -102,8 +104,9 @@ def format_change(rel: float | None, old=None) -> str:
     if math.isinf(rel):
         return "(from zero)"
     pct = rel * 100
-    if pct != 0 and abs(pct) < 1e-3:
-        return "(< 0.001 %)"
+    tiny = tiny_percent_text(pct)
+    if tiny:
+        return f"({tiny})"
     if abs(pct) < MARGIN_SHOWN + 0.5:
         return f"({pct:+.3g} %)"
     if pct > 0 and _is_number(old) and old > 0:
