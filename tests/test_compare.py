@@ -846,6 +846,59 @@ def test_an_uncertain_rename_is_counted_not_listed(tmp_path):
     assert len(cl.format_text().splitlines()) < 20
 
 
+_U6_LEGACY = ('{ ref = "U6", part = "io-expander-i2c" }',
+              '{ ref = "U6", part = "io-expander-legacy-5v" }')
+
+
+def test_a_bus_renamed_while_a_device_changed_reads_as_a_rename_and_the_change(tmp_path):
+    # Once only counted: "bus sensors (46 checks) is absent now; ... bus sensors-bus (46
+    # checks) is new", then only the new bus's warnings and failures as "(absent) →".
+    # The same devices on a bus of the same shape, all but U6 on the same part: the same
+    # bus renamed, and the change list is the one of the part change alone, in the new
+    # names.
+    old = _demo_snapshot(tmp_path, "a.toml")
+    cl = compare(old, _demo_snapshot(tmp_path, "b.toml", *_RENAME_BUS, _U6_LEGACY))
+    assert cl.renames == [("bus", "sensors", "sensors-bus")] and not cl.groups
+    assert cl.status_changes and all(c.old and c.new for c in cl.status_changes)
+    (u6,) = cl.part_changes
+    assert (u6.ref, u6.old_part, u6.new_part) == ("U6", "io-expander-i2c",
+                                                  "io-expander-legacy-5v")
+    assert u6.buses == ["sensors-bus"] and u6.values
+    text = cl.format_text()
+    assert "bus sensors renamed to sensors-bus; below in the new names" in text
+    assert "(absent)" not in text and "is absent now" not in text
+    alone = compare(old, _demo_snapshot(tmp_path, "c.toml", _U6_LEGACY))
+    assert [ln.replace("sensors-bus", "sensors") for ln in text.splitlines()[2:]] == \
+        alone.format_text().splitlines()[1:]
+
+
+def test_a_loose_rename_is_made_only_where_it_is_unique_and_most_parts_stay():
+    from pinlib.studies.compare.renames import find_renames
+
+    def snap(buses, parts):
+        return {"buses": [{"id": b, "protocol": "i2c", "checks": []} for b in buses],
+                "parts": {r: {"part": p, "buses": [on] if isinstance(on, str) else on,
+                              "values": {}}
+                          for r, (p, on) in parts.items()}}
+
+    old = snap(["a"], {"U1": ("p1", "a"), "U2": ("p2", "a"), "U3": ("p3", "a")})
+    one = snap(["b"], {"U1": ("p1", "b"), "U2": ("p2", "b"), "U3": ("px", "b")})
+    assert find_renames(old, one) == ({"a": "b"}, {})
+    two = snap(["b"], {"U1": ("p1", "b"), "U2": ("py", "b"), "U3": ("px", "b")})
+    assert find_renames(old, two) == ({}, {})  # most parts changed: not the same bus
+    gone = snap(["b"], {"U1": ("p1", "b"), "U2": ("p2", "b")})
+    assert find_renames(old, gone) == ({}, {})  # a device removed: not the same devices
+    spi = {**one, "buses": [{"id": "b", "protocol": "spi", "checks": []}]}
+    assert find_renames(old, spi) == ({}, {})
+    # two buses of one shape holding the same devices, both renamed: either could be
+    # either, so neither is guessed
+    old = snap(["a", "a2"], {"U1": ("p1", ["a", "a2"]), "U2": ("p2", ["a", "a2"]),
+                             "U3": ("p3", ["a", "a2"])})
+    new = snap(["b", "b2"], {"U1": ("p1", ["b", "b2"]), "U2": ("p2", ["b", "b2"]),
+                             "U3": ("px", ["b", "b2"])})
+    assert find_renames(old, new) == ({}, {})
+
+
 def test_two_devices_of_one_part_renamed_are_not_guessed():
     from pinlib.studies.compare.renames import find_renames
 

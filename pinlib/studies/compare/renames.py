@@ -3,7 +3,11 @@
 A bus present in the old snapshot and absent now, and a new bus with the same content
 (protocol, segments, lines, the ids of its checks, the parts on it), is the same bus
 renamed; so is a device reference absent now and a new one with the same part on the
-same buses.  A match must be unique both ways, or it is not made.  The old snapshot is
+same buses.  A bus renamed while a device on it changed its part has not the same
+content (its parts, perhaps its checks); of the buses left, one absent now and one new
+with the same shape (protocol, segments, lines), the same device references and most
+of them on the same part are the same bus renamed.  A match must be unique both ways,
+or it is not made.  The old snapshot is
 then rewritten in the new names (:func:`renamed_snapshot`), so that the renamed items
 are compared with each other as any other, and the change list says the rename once
 instead of every check of the old name disappearing and every check of the new one
@@ -48,15 +52,36 @@ def _bus_content(snap: dict, bus: dict) -> tuple:
             tuple(checks), tuple(parts))
 
 
-def _unique_pairs(old: dict, new: dict) -> dict:
-    """Old key -> new key where their content is equal and found once on each side."""
+def _unique_pairs(old: dict, new: dict, same=None) -> dict:
+    """Old key -> new key where their content is the same (equal, or ``same(old, new)``)
+    and no other key on either side is the same as either."""
+    same = same or (lambda a, b: a == b)
     pairs = {}
     for ko, co in old.items():
-        same_new = [kn for kn, cn in new.items() if cn == co]
-        same_old = [k for k, c in old.items() if c == co]
-        if len(same_new) == 1 and len(same_old) == 1:
+        same_new = [kn for kn, cn in new.items() if same(co, cn)]
+        if len(same_new) != 1:
+            continue
+        cn = new[same_new[0]]
+        if [k for k, c in old.items() if same(c, cn)] == [ko]:
             pairs[ko] = same_new[0]
     return pairs
+
+
+def _bus_devices(snap: dict, bus: dict) -> tuple:
+    """A bus's shape (protocol, segments, lines) and its devices, reference -> part."""
+    bid = bus.get("id")
+    devices = {r: p.get("part") for r, p in (snap.get("parts") or {}).items()
+               if isinstance(p, dict) and bid in (p.get("buses") or ())}
+    return _bus_content(snap, bus)[:3], devices
+
+
+def _mostly_same(old: tuple, new: tuple) -> bool:
+    """The same shape and the same device references, more than half of them on the
+    same part as before (a bus renamed while a device on it changed its part)."""
+    (shape_o, dev_o), (shape_n, dev_n) = old, new
+    if shape_o != shape_n or not dev_o or set(dev_o) != set(dev_n):
+        return False
+    return 2 * sum(dev_o[r] == dev_n[r] for r in dev_o) > len(dev_o)
 
 
 def find_renames(old: dict, new: dict) -> tuple[dict, dict]:
@@ -65,6 +90,11 @@ def find_renames(old: dict, new: dict) -> tuple[dict, dict]:
     new_b = {b.get("id"): b for b in new.get("buses", ()) or ()}
     buses = _unique_pairs({k: _bus_content(old, b) for k, b in old_b.items() if k not in new_b},
                           {k: _bus_content(new, b) for k, b in new_b.items() if k not in old_b})
+    taken = set(buses.values())
+    buses.update(_unique_pairs(
+        {k: _bus_devices(old, b) for k, b in old_b.items() if k not in new_b and k not in buses},
+        {k: _bus_devices(new, b) for k, b in new_b.items() if k not in old_b and k not in taken},
+        _mostly_same))
     old_p, new_p = old.get("parts") or {}, new.get("parts") or {}
 
     def device(p: dict, rename: dict) -> tuple:
