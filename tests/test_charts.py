@@ -848,6 +848,25 @@ def test_cached_compile_gives_the_same_svg(name, monkeypatch):
         assert charts.to_svg(spec).encode() == direct.encode()
 
 
+def test_cached_compile_keeps_an_axis_ticks_as_layout(monkeypatch):
+    # an axis given its ticks ("values" in the axis, as the crosstalk chart's log
+    # spacing axis) is layout, not data rows: the layout still compiles once and later
+    # redraws only render
+    import vl_convert
+
+    spacing = np.geomspace(0.1, 2.0, 9) * MILLI
+    spec = charts.spec(charts.noise_vs_spacing, spacing, 0.4 / (spacing / MILLI),
+                       allowed=0.99, design_spacing=0.3 * MILLI, design_peak=1.3)
+    axis = spec["layer"][0]["encoding"]["x"]["axis"]
+    assert axis["values"] == [100, 200, 500, 1000, 2000]  # derived: 1-2-5 over 100-2000 µm
+    direct = charts.to_svg(spec, cache=False)
+    assert charts.to_svg(spec) == direct
+    with monkeypatch.context() as m:
+        m.setattr(vl_convert, "vegalite_to_svg", None)
+        m.setattr(vl_convert, "vegalite_to_vega", None)
+        assert charts.to_svg(spec).encode() == direct.encode()
+
+
 def test_fast_spec_reuses_a_layout_only_where_it_is_the_same():
     # derived from altair's own Chart.to_dict(): a redraw that reuses the layout built
     # for earlier arguments must still give the dict altair builds for these arguments
