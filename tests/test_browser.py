@@ -10,6 +10,7 @@ with the file browser side panel open and run with Run All; then, at 1400 × 900
   no label, value or choice is cut (a dropdown's choice longer than it shows is shown
   whole on the line under it; a list shows each item whole), toggle buttons stay on one
   row, and focusing a field scrolls nothing sideways;
+* a field that holds prose (workbook 01's title) shows a 60-character text whole;
 * no text of a chart (SVG) ends past the chart's edge, overprints another or says
   ``undefined``/``NaN``;
 * no cell shows an error, a traceback or a widget's text repr, and no widget shows an
@@ -96,6 +97,8 @@ class Spec:
     before_bad: tuple[tuple[str, str], ...] = ()
     #: a tab to choose before the bad quantities
     bad_tab: str | None = None
+    #: (label, text) typed into a text field that must then show the whole text
+    long_text: tuple[tuple[str, str], ...] = ()
 
 
 #: the per-length trace values, shown for a trace given per length only
@@ -107,7 +110,9 @@ SPECS = [
                    "Extra C", "Rp", "Rise", "Probe", "Save as"),
          change=("Mode", "standard"),
          bad=(("Supply", "4.7 kohms", None), ("Supply", "-3.3", None)),
-         may_hide=_PER_LENGTH),
+         may_hide=_PER_LENGTH,
+         # 60 characters: a board's title as people write them
+         long_text=(("Title", "Sensor board rev. C: I2C bus from the MCU to the front panel"),)),
     Spec("02-push-pull-line.ipynb",
          required=("Driver", "Output pin", "Supply", "Receiver", "Trace", "Length", "Rs"),
          change=("Trace", None),
@@ -403,6 +408,36 @@ def test_every_labelled_control_is_shown(wb):
 def test_nothing_scrolls_or_is_cut_sideways(wb):
     problems = wb.sideways_problems()
     assert not problems, f"{len(problems)} problems:\n  " + "\n  ".join(problems)
+
+
+def test_a_long_text_shows_whole_in_its_field(wb):
+    """A field that holds prose (a title) shows the whole of a long one: the sideways
+    test above measures fields holding short values only."""
+    spec: Spec = wb.spec
+    if not spec.long_text:
+        pytest.skip("no field of this workbook holds prose")
+    failures = []
+    for label, text in spec.long_text:
+        loc, _ = wb.shown_control(label)
+        kept = loc.locator("input, textarea").first.input_value()
+        try:
+            wb.type_into(label, text)
+            wb.settle()
+            loc, _ = wb.shown_control(label)
+            field = loc.locator("input, textarea").first
+            field.blur()
+            shown = field.input_value()
+            content, room = field.evaluate("i => [i.scrollWidth, i.clientWidth]")
+            wb.screenshot("long-text")
+            if shown != text:
+                failures.append(f"{label!r} shows {shown!r}, not what was typed")
+            # common practice, no source: 1 px for sub-pixel rounding
+            if content > room + 1:
+                failures.append(f"{label!r} is cut: {content} px of text in {room} px")
+        finally:
+            wb.type_into(label, kept)
+            wb.settle()
+    assert not failures, "\n  ".join(["long texts:"] + failures)
 
 
 def test_chart_text_stays_inside_its_chart(wb):

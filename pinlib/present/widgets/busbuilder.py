@@ -199,8 +199,10 @@ class BusBuilder(_Panel):
     def _bus_controls(self, title: str, protocol: str, supply: float) -> None:
         """The bus: title, protocol, mode, supply and its tolerance."""
         q = self._quantity
+        # a row of its own across the workbench (a title is prose: the control column
+        # showed some 30 characters of it)
         self.title = W.Text(value=title, description="Title", style=style(),
-                            layout=field_layout())
+                            layout=W.Layout(width="auto", max_width="100%"))
         self.protocol = W.ToggleButtons(options=list(OPEN_DRAIN_PROTOCOLS), value=protocol,
                                         description="Protocol",
                                         style=style(button_width="72px"),
@@ -566,7 +568,7 @@ class BusBuilder(_Panel):
 
     def _layout(self) -> W.Widget:
         controls = [
-            self.title, self.protocol, self.mode, self.mode_note, self.supply.box,
+            self.protocol, self.mode, self.mode_note, self.supply.box,
             self.supply_tolerance.box,
             heading("Parts"), self.category, self.fits_supply, self.function,
             self.controller, choice_line(self.controller), self.controller_note,
@@ -582,5 +584,5 @@ class BusBuilder(_Panel):
         outputs = [self.held_html, self.status_html, self.window.widget, self.figures_html,
                    self.notes_html]
         return W.VBox([self._header("Start a design: an I2C/SMBus bus from library parts"),
-                       self._columns(controls, outputs, [self.checks_html])],
+                       self.title, self._columns(controls, outputs, [self.checks_html])],
                       layout=W.Layout(width="100%"))
