@@ -335,6 +335,22 @@ def test_save_never_overwrites_an_existing_file_unless_ticked(library, tmp_path)
     assert "is a folder" in b.save_error.value
 
 
+def test_save_refuses_while_a_field_is_refused(library, tmp_path):
+    # the file would hold the field's last valid value, not the text it shows
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.supply.text.value = "3.3"  # no unit: refused, the panel keeps 3.3 V
+    assert b.refused_fields()
+    with pytest.raises(InputError, match="refused: Supply"):
+        b.save(tmp_path / "board.toml")
+    b.save_path.value = str(tmp_path / "board.toml")
+    b.save_button.click()
+    assert not (tmp_path / "board.toml").exists()
+    assert "refused: Supply" in b.save_error.value
+    b.supply.text.value = "3.3 V"
+    b.save_button.click()
+    assert (tmp_path / "board.toml").exists() and "saved" in b.save_error.value
+
+
 # =========================================================================== LineExplorer
 
 

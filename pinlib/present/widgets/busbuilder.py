@@ -520,8 +520,15 @@ class BusBuilder(_Panel):
         be (its ``library`` folders resolved beside it) before anything is written; an
         invalid design raises and leaves any existing file as it was.  An existing file
         is replaced only with ``overwrite`` (as ``pinlib new`` only with ``--force``):
-        without it a :class:`~pinlib.core.errors.WriteError` names the file.
+        without it a :class:`~pinlib.core.errors.WriteError` names the file.  While a
+        quantity field's text is refused nothing is written (an InputError names the
+        fields): the file would hold their last valid values, not what they show.
         """
+        refused = [f.description for f in self.fields.values() if f.error is not None]
+        if refused:
+            raise InputError(M.SAVE_WITH_REFUSED_FIELDS.format(fields=", ".join(refused)),
+                             field="save as",
+                             expected="a valid value in each (its message is under it)")
         path = Path(path)
         text = self.design_text(relative_to=path.parent)
         design_from_text(tomllib.loads(text), text, path)
