@@ -351,6 +351,15 @@ def test_save_refuses_while_a_field_is_refused(library, tmp_path):
     assert (tmp_path / "board.toml").exists() and "saved" in b.save_error.value
 
 
+def test_save_into_a_missing_folder_names_the_file(library, tmp_path):
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    target = tmp_path / "nowhere" / "board.toml"
+    b.save_path.value = str(target)
+    b.save_button.click()
+    assert "cannot write in this folder" in b.save_error.value
+    assert str(target) in b.save_error.value
+
+
 # =========================================================================== LineExplorer
 
 

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import copy
 import math
 import os
 from pathlib import Path
@@ -559,6 +560,11 @@ class BusBuilder(_Panel):
         except PinlibError as err:
             if err.problem == M.SAVE_WOULD_OVERWRITE.format(file=Path(name)):
                 self.save_overwrite.description = f"overwrite {Path(name).name}"
+            if err.file and err.file not in err.problem:
+                # the file it is about, as the command line writes it ("cannot write in
+                # this folder" alone does not say which folder)
+                err = copy.copy(err)
+                err.problem = f"{err.file}: {err.problem}"
             self.save_error.value = inline_error(err)
             return
         self.save_overwrite.value = False  # the next overwrite is asked for again
