@@ -360,6 +360,20 @@ def test_save_into_a_missing_folder_names_the_file(library, tmp_path):
     assert str(target) in b.save_error.value
 
 
+def test_bench_reading_says_when_it_is_not_that_of_the_field(library):
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.set(rise_measured=250e-9)
+    reading = b.bench_html.value
+    assert "bus capacitance without the probe" in reading
+    b.rise_measured.text.value = "5 pF"  # refused: the reading shown is that of 250 ns
+    shown = b.bench_html.value
+    assert "Not recomputed" in shown and "Rise measured" in shown
+    assert "last valid inputs" in shown and reading in shown
+    b.rise_measured.text.value = "300 ns"
+    assert "Not recomputed" not in b.bench_html.value
+    assert b.bench is not None and b.bench.t_measured == pytest.approx(300e-9)
+
+
 # =========================================================================== LineExplorer
 
 

@@ -62,6 +62,7 @@ from pinlib.present.widgets.markup import (
     inline_error,
     note,
     notes_html,
+    notice,
     status_line,
 )
 
@@ -274,6 +275,7 @@ class BusBuilder(_Panel):
                                           ("20–80 %", (0.2, 0.8))], value=(0.3, 0.7),
                                  description="Measured", style=style(), layout=field_layout())
         self.bench_html = W.HTML(layout=W.Layout(width="auto"))
+        self._bench_shown = ""  # the last reading worked out (HTML)
         self.save_path = W.Text(value="", placeholder="board.toml", description="Save as",
                                 style=style(), layout=field_layout())
         self.save_button = W.Button(description="Save", layout=button_layout())
@@ -486,9 +488,17 @@ class BusBuilder(_Panel):
     def _bench(self) -> None:
         from pinlib.engines.opendrain import capacitance_from_rise
 
-        if self.rise_measured.error or self.c_probe.error:
-            return  # the reading shown stays that of the last valid inputs
+        refused = [f for f in (self.rise_measured, self.c_probe) if f.error]
+        if refused:
+            # the reading shown stays that of the last valid inputs, and says so
+            names = " and ".join(f"<b>{e(f.description)}</b>" for f in refused)
+            self.bench_html.value = notice(
+                f"Not recomputed: {names} {'is' if len(refused) == 1 else 'are'} not valid. "
+                + ("The reading below is that of the last valid inputs." if self._bench_shown
+                   else "")) + self._bench_shown
+            return
         self.bench, self.bench_error = None, None
+        self._bench_shown = ""
         t = self.rise_measured.value
         if self.window_data is None:
             self.bench_html.value = note("the bench panel needs a design that evaluates")
@@ -507,7 +517,7 @@ class BusBuilder(_Panel):
             return
         self.bench = BenchReading(t, c_probe, (lo, hi), w.chosen_rp, float(cb), float(rise),
                                   w.chosen_cb)
-        self.bench_html.value = (
+        self.bench_html.value = self._bench_shown = (
             f'<div style="{BLOCK};font-size:12px">With Rp = {format_si(w.chosen_rp, "Ω")} (every '
             f"pull-up on {w.signal.upper()} in parallel): bus capacitance without the probe "
             f"<b>{format_si(cb, 'F')}</b> (the model's Cb: {format_si(w.chosen_cb, 'F')}); "
