@@ -33,7 +33,6 @@ from pinlib.present.widgets.common import (
     set_options,
     style,
     toggle_layout,
-    with_button,
 )
 from pinlib.present.widgets.designdoc import (
     _design_doc,
@@ -377,7 +376,8 @@ class LineExplorer(_Panel):
         controls = [
             self.driver_part, choice_line(self.driver_part), self.driver_pin, self.pin_note,
             self.supply.box,
-            heading("Receivers"), self.any_function, with_button(self.pick, self.add_button),
+            heading("Receivers"), self.any_function,
+            with_button_below(self.pick, self.add_button),
             choice_line(self.pick), self.pick_note,
             with_button_below(self.placed, self.remove_button),
             heading("Trace"), self.trace.box,
