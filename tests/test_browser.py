@@ -116,7 +116,8 @@ SPECS = [
          bad=(("Supply", "4.7 kohms", None), ("Supply", "-3.3", None)),
          may_hide=_PER_LENGTH,
          # 60 characters: a board's title as people write them
-         long_text=(("Title", "Sensor board rev. C: I2C bus from the MCU to the front panel"),),
+         long_text=(("Title", "Sensor board rev. C: I2C bus from the MCU to the front panel"),
+                    ("Save as", "designs/sensor-board-rev-c.toml")),
          long_item=("Peripheral", "board-to-board-connector", "Add", "Placed")),
     Spec("02-push-pull-line.ipynb",
          required=("Driver", "Output pin", "Supply", "Receiver", "Trace", "Length", "Rs"),

@@ -39,7 +39,6 @@ from pinlib.present.widgets.common import (
     set_options,
     style,
     toggle_layout,
-    with_button,
 )
 from pinlib.present.widgets.designdoc import (
     _design_doc,
@@ -602,7 +601,7 @@ class BusBuilder(_Panel):
             heading("Pull-up"), self.pullup_mode, self.pullup, self.pullup_tolerance.box,
             heading("Bench: a measured rise"), self.rise_measured.box, self.c_probe.box,
             self.levels, self.bench_html,
-            heading("Save"), with_button(self.save_path, self.save_button),
+            heading("Save"), with_button_below(self.save_path, self.save_button),
             self.save_overwrite, self.save_error,
         ]
         outputs = [self.held_html, self.status_html, self.window.widget, self.figures_html,
