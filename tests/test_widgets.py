@@ -480,6 +480,25 @@ def test_line_receivers_and_pins(library):
     assert le.design.buses[0].devices[0].pin == "copi"
 
 
+def test_line_says_which_receivers_take_another_function_than_the_pin(library):
+    # the output pin changed from sclk to copi: the sclk receivers placed stay, and the
+    # list says so rather than drawing a copi line into sclk inputs without a word
+    le = LineExplorer(library, receivers=[("nor-flash-spi", "sclk")], length=0.05)
+    assert le.placed_note.value == ""
+    le.set(driver_pin="copi")
+    said = le.placed_note.value
+    assert "U2 nor-flash-spi: sclk (spi-sclk) receives another function" in said
+    assert "(spi-copi)" in said
+    le.add_receiver("nor-flash-spi", "copi")
+    assert "U2 nor-flash-spi" in le.placed_note.value
+    assert "U3" not in le.placed_note.value
+    le.set(any_function=True)  # asked for: nothing to say
+    assert le.placed_note.value == ""
+    le.set(any_function=False)
+    le.remove_receiver("U2")
+    assert le.placed_note.value == ""
+
+
 # =========================================================================== SpiBudget
 
 
