@@ -300,6 +300,87 @@ def test_pullup_window_spec():
     assert _colour_scale(chart)["range"][-1] == charts.OPERATING
 
 
+def _axis_labels(scene) -> dict[str, list[tuple[str, float, float, str]]]:
+    """Each axis' shown labels (text, x, y, align), from the rendered scenegraph: "x"
+    the horizontal axis (one y), "y" the vertical one (one x)."""
+    found = []
+
+    def walk(node):
+        if isinstance(node, dict):
+            if node.get("role") == "axis-label":
+                found.append([(i["text"], i["x"], i["y"], i.get("align", "center"))
+                              for i in node.get("items", [])
+                              if i.get("text") and i.get("opacity", 1) != 0])
+            for item in node.get("items", []):
+                walk(item)
+
+    walk(scene["scenegraph"])
+    assert len(found) == 2, found
+    horizontal = [a for a in found if len({y for _, _, y, _ in a}) == 1 and len(a) > 1]
+    vertical = [a for a in found if a is not horizontal[0]]
+    return {"x": horizontal[0], "y": vertical[0]}
+
+
+def _label_gaps(labels, *, along: bool) -> list[float]:
+    """The room between neighbouring labels of an axis: along it, between the texts'
+    widths in the charts' font at 10 px (Vega's label size) placed by their align;
+    stacked, between their line boxes (1.164 em, DejaVu Sans). [px]"""
+    spans = []
+    for text, x, y, align in labels:
+        if along:
+            w = charts.text_width(text, 10)
+            start = {"left": x, "center": x - w / 2, "right": x - w}[align]
+            spans.append((start, start + w))
+        else:
+            spans.append((y - 5.82, y + 5.82))
+    spans.sort()
+    return [b[0] - a[1] for a, b in zip(spans, spans[1:], strict=False)]
+
+
+@pytest.mark.parametrize("width", [340, 480, 720])
+@pytest.mark.parametrize(("c_lo", "c_hi", "rp_min"), [
+    (5, 800, 1020.0),      # the I2C workbook's Fast-mode window
+    (10, 400, 967.0),
+    (2, 4000, 150.0),      # more than three decades each way
+    (30, 90, 2000.0),      # half a decade of Cb
+])
+def test_pullup_window_axis_labels_keep_clear_of_each_other(width, c_lo, c_hi, rp_min):
+    import vl_convert
+
+    cb = np.geomspace(c_lo, c_hi, 41) * PICO
+    rp_max = 1e-6 / (0.8473 * cb)
+    spec = charts.spec(charts.pullup_window, cb, rp_min, rp_max,
+                       chosen_cb=float(np.sqrt(c_lo * c_hi)) * PICO,
+                       chosen_rp=float(np.sqrt(rp_min * rp_max[20])), width=width)
+    labels = _axis_labels(vl_convert.vegalite_to_scenegraph(spec))
+    # common practice, no source: one em (10 px) between labels along an axis reads as
+    # two numbers ("300 400" 4 px apart ran together), 2 px between stacked line boxes
+    for axis, along, gap in (("x", True, 10.0), ("y", False, 2.0)):
+        shown = labels[axis]
+        assert len(shown) >= 2, (axis, shown)
+        gaps = _label_gaps(shown, along=along)
+        assert min(gaps) >= gap - 0.5, (axis, [t for t, *_ in shown], gaps)
+
+
+def test_spaced_log_ticks_thin_out_as_the_axis_shortens():
+    from pinlib.present.charts.frame import spaced_log_ticks, tick_label
+
+    # 1-2-5 of a decade where they fit, one a decade, then one every few decades
+    assert spaced_log_ticks(5.0, 800.0, 402) == [5, 10, 20, 50, 100, 200, 500]
+    assert spaced_log_ticks(5.0, 800.0, 200) == [10, 100, 1000]
+    assert spaced_log_ticks(0.001, 1e5, 402) == [0.01, 1, 100, 10000]
+    # within a decade: every whole step of it
+    assert spaced_log_ticks(1.5, 8.0, 400) == [2, 3, 4, 5, 6, 7, 8]
+    # stacked labels need only their line's height
+    assert spaced_log_ticks(0.44, 35.4, 260, along=False) == [0.5, 1, 2, 5, 10, 20]
+    # no two ticks to be had: the renderer's own
+    assert spaced_log_ticks(3.1, 3.9, 400) is None
+    assert spaced_log_ticks(10.0, 10.0, 400) is None
+    assert spaced_log_ticks(1.0, 100.0, 20) is None
+    assert [tick_label(v) for v in (0.5, 1.0, 20.0, 1000.0, 0.001)] == [
+        "0.5", "1", "20", "1000", "0.001"]
+
+
 def test_pullup_window_rp_min_as_array_and_bad_shapes():
     cb = np.array([10, 100]) * PICO
     chart = charts.pullup_window(cb, np.array([900.0, 1000.0]), np.array([30e3, 3e3]),
@@ -843,6 +924,25 @@ def test_cached_compile_gives_the_same_svg(name, monkeypatch):
     direct = charts.to_svg(spec, cache=False)
     assert charts.to_svg(spec) == direct  # compiles the layout
     with monkeypatch.context() as m:  # now only the cached compile may be used
+        m.setattr(vl_convert, "vegalite_to_svg", None)
+        m.setattr(vl_convert, "vegalite_to_vega", None)
+        assert charts.to_svg(spec).encode() == direct.encode()
+
+
+def test_cached_compile_keeps_an_axis_ticks_as_layout(monkeypatch):
+    # an axis given its ticks ("values" in the axis, as the crosstalk chart's log
+    # spacing axis) is layout, not data rows: the layout still compiles once and later
+    # redraws only render
+    import vl_convert
+
+    spacing = np.geomspace(0.1, 2.0, 9) * MILLI
+    spec = charts.spec(charts.noise_vs_spacing, spacing, 0.4 / (spacing / MILLI),
+                       allowed=0.99, design_spacing=0.3 * MILLI, design_peak=1.3)
+    axis = spec["layer"][0]["encoding"]["x"]["axis"]
+    assert axis["values"] == [100, 200, 500, 1000, 2000]  # derived: 1-2-5 over 100-2000 µm
+    direct = charts.to_svg(spec, cache=False)
+    assert charts.to_svg(spec) == direct
+    with monkeypatch.context() as m:
         m.setattr(vl_convert, "vegalite_to_svg", None)
         m.setattr(vl_convert, "vegalite_to_vega", None)
         assert charts.to_svg(spec).encode() == direct.encode()

@@ -2786,6 +2786,15 @@ def _(env):
     return _fails(lambda e: _builder(e).save("boards", overwrite=True), env)
 
 
+@case("SAVE_WITH_REFUSED_FIELDS",
+      lambda: M.SAVE_WITH_REFUSED_FIELDS.format(fields="Supply, Length"))
+def _(env):
+    b = _builder(env)
+    b.supply.text.value = "3.3"  # no unit
+    b.trace.length.text.value = "14"
+    return _fails(lambda e: b.save(e.tmp / "board.toml"), env)
+
+
 @case("DESIGN_PATH_NEEDED")
 def _(env):
     x = _widgets().SwapExplorer(Path(__file__).resolve().parents[1] / "workbooks" / "designs"

@@ -335,6 +335,45 @@ def test_save_never_overwrites_an_existing_file_unless_ticked(library, tmp_path)
     assert "is a folder" in b.save_error.value
 
 
+def test_save_refuses_while_a_field_is_refused(library, tmp_path):
+    # the file would hold the field's last valid value, not the text it shows
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.supply.text.value = "3.3"  # no unit: refused, the panel keeps 3.3 V
+    assert b.refused_fields()
+    with pytest.raises(InputError, match="refused: Supply"):
+        b.save(tmp_path / "board.toml")
+    b.save_path.value = str(tmp_path / "board.toml")
+    b.save_button.click()
+    assert not (tmp_path / "board.toml").exists()
+    assert "refused: Supply" in b.save_error.value
+    b.supply.text.value = "3.3 V"
+    b.save_button.click()
+    assert (tmp_path / "board.toml").exists() and "saved" in b.save_error.value
+
+
+def test_save_into_a_missing_folder_names_the_file(library, tmp_path):
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    target = tmp_path / "nowhere" / "board.toml"
+    b.save_path.value = str(target)
+    b.save_button.click()
+    assert "cannot write in this folder" in b.save_error.value
+    assert str(target) in b.save_error.value
+
+
+def test_bench_reading_says_when_it_is_not_that_of_the_field(library):
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.set(rise_measured=250e-9)
+    reading = b.bench_html.value
+    assert "bus capacitance without the probe" in reading
+    b.rise_measured.text.value = "5 pF"  # refused: the reading shown is that of 250 ns
+    shown = b.bench_html.value
+    assert "Not recomputed" in shown and "Rise measured" in shown
+    assert "last valid inputs" in shown and reading in shown
+    b.rise_measured.text.value = "300 ns"
+    assert "Not recomputed" not in b.bench_html.value
+    assert b.bench is not None and b.bench.t_measured == pytest.approx(300e-9)
+
+
 # =========================================================================== LineExplorer
 
 
@@ -439,6 +478,25 @@ def test_line_receivers_and_pins(library):
     assert "no receiving input" in le.waves.message
     le.set(driver_pin="copi")
     assert le.design.buses[0].devices[0].pin == "copi"
+
+
+def test_line_says_which_receivers_take_another_function_than_the_pin(library):
+    # the output pin changed from sclk to copi: the sclk receivers placed stay, and the
+    # list says so rather than drawing a copi line into sclk inputs without a word
+    le = LineExplorer(library, receivers=[("nor-flash-spi", "sclk")], length=0.05)
+    assert le.placed_note.value == ""
+    le.set(driver_pin="copi")
+    said = le.placed_note.value
+    assert "U2 nor-flash-spi: sclk (spi-sclk) receives another function" in said
+    assert "(spi-copi)" in said
+    le.add_receiver("nor-flash-spi", "copi")
+    assert "U2 nor-flash-spi" in le.placed_note.value
+    assert "U3" not in le.placed_note.value
+    le.set(any_function=True)  # asked for: nothing to say
+    assert le.placed_note.value == ""
+    le.set(any_function=False)
+    le.remove_receiver("U2")
+    assert le.placed_note.value == ""
 
 
 # =========================================================================== SpiBudget

@@ -495,6 +495,7 @@ SAVE_WOULD_OVERWRITE = "{file} exists; Save does not overwrite a file"
 SAVE_OVERWRITE_HINT = ("tick 'overwrite {name}' and press Save again to replace it, or "
                        "choose another name")
 SAVE_TARGET_IS_FOLDER = "{file} is a folder"
+SAVE_WITH_REFUSED_FIELDS = "not saved while a field is refused: {fields}"
 NOT_AN_INPUT_PIN = "not an input pin of the part"
 NO_SPI_BUS = "the design has no SPI bus"
 NO_SPI_BUS_OF_ID = "no SPI bus of that id"

@@ -17,8 +17,12 @@ from pinlib.present.charts.style import (
     _LEGEND_OFFSET,
     _LEGEND_SIZE,
     _LEGEND_SYMBOL,
+    _LINE_BOX,
     _PAD_PX,
     _PREFIXES,
+    _TICK_GAP_ALONG,
+    _TICK_GAP_STACKED,
+    _TICK_SIZE,
     _WIDTH,
     FONT,
     _wrap,
@@ -171,6 +175,98 @@ def log_ticks(lo: float, hi: float) -> list[float]:
             if lo * (1 - 1e-9) <= v <= hi * (1 + 1e-9):
                 out.append(v)
     return out
+
+
+#: Mantissas of a decade's ticks, densest first; then one tick every few decades.
+_DECADE_TICKS = ((1, 2, 3, 4, 5, 6, 7, 8, 9), (1, 2, 5), (1, 3), (1,))
+_DECADE_STEPS = (2, 3, 5, 10, 20, 50, 100)
+
+
+def tick_label(value: float) -> str:
+    """An axis label as Vega writes a value given as a tick with the format ``~r``:
+    decimal notation, 12 significant digits, trailing zeros off."""
+    text = np.format_float_positional(float(f"{float(value):.12g}"), trim="-")
+    return "0" if text == "-0" else text
+
+
+def _label_spans(ticks: Sequence[float], lo: float, hi: float, length: float, *,
+                 along: bool) -> list[tuple[float, float]]:
+    """Where each tick's label lies on a log axis ``length`` px long from ``lo`` to
+    ``hi``: (start, end) along the axis. [px]
+
+    Along a horizontal axis a label is centred on its tick, or flush with the axis end
+    it is within ``_FLUSH_PX`` of (as :func:`_axis` lays it); across a vertical one it
+    is its line box, centred."""
+    span = math.log10(hi / lo)
+    out = []
+    for v in ticks:
+        x = math.log10(v / lo) / span * length
+        w = text_width(tick_label(v), _TICK_SIZE) if along else _LINE_BOX * _TICK_SIZE
+        if along and x < _FLUSH_PX:
+            out.append((x, x + w))
+        elif along and x > length - _FLUSH_PX:
+            out.append((x - w, x))
+        else:
+            out.append((x - w / 2, x + w / 2))
+    return out
+
+
+def _candidates(lo: float, hi: float):
+    """Tick sets for the values ``lo`` to ``hi``, densest first."""
+    first, last = math.floor(math.log10(lo)) - 1, math.ceil(math.log10(hi)) + 1
+
+    def inside(v: float) -> bool:
+        return lo * (1 - 1e-9) <= v <= hi * (1 + 1e-9)
+
+    for mantissas in _DECADE_TICKS:
+        yield [v for d in range(first, last + 1) for m in mantissas
+               if inside(v := float(f"{m * 10.0 ** d:.12g}"))]
+    for step in _DECADE_STEPS:
+        yield [v for d in range(first, last + 1) if d % step == 0
+               if inside(v := float(f"{10.0 ** d:.12g}"))]
+
+
+def spaced_log_ticks(lo: float, hi: float, length: float, *, along: bool = True,
+                     pad: float = _PAD_PX) -> list[float] | None:
+    """Ticks for a log axis whose labels never collide: the densest of 1-9, 1-2-5, 1-3
+    and 1 per decade, then 1 every 2, 3, 5... decades, whose labels keep clear of each
+    other on an axis ``length`` px long.
+
+    Parameters
+    ----------
+    lo, hi : float
+        The smallest and largest value the axis draws (display units, as labelled). [1]
+    length : float
+        The axis' length (an estimate that errs short errs safe). [px]
+    along : bool, optional
+        The labels lie along the axis (a horizontal axis); False for a vertical axis,
+        whose labels are stacked. [1]
+    pad : float, optional
+        How far inside the axis ends ``lo`` and ``hi`` are drawn (the scale's padding);
+        ticks in that margin are offered too. [px]
+
+    Returns
+    -------
+    list of float or None
+        At least two ticks whose labels are ``_TICK_GAP_ALONG`` px apart along the axis
+        (``_TICK_GAP_STACKED`` stacked), or None where no set gives two (a range within
+        one decade's step, or an axis too short): the renderer's own ticks then.
+    """
+    if not (0 < lo < hi and math.isfinite(hi) and length > 2 * pad):
+        return None
+    # the values at the axis ends, the padding included
+    grow = math.log10(hi / lo) * pad / (length - 2 * pad)
+    lo_end, hi_end = lo / 10.0 ** grow, hi * 10.0 ** grow
+    gap = _TICK_GAP_ALONG if along else _TICK_GAP_STACKED
+    for ticks in _candidates(lo_end, hi_end):
+        if len(ticks) < 2:
+            continue
+        spans = _label_spans(ticks, lo_end, hi_end, length, along=along)
+        # a label past a horizontal axis' end would be hidden (labelBound, 1 px)
+        inside = not along or (spans[0][0] >= -1.0 and spans[-1][1] <= length + 1.0)
+        if inside and all(b[0] - a[1] >= gap for a, b in zip(spans, spans[1:], strict=False)):
+            return ticks
+    return None
 
 
 def _q(field: str, title: str, *, log: bool = False, channel: str = "x", pad: bool = False,

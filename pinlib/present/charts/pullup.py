@@ -21,6 +21,7 @@ from pinlib.present.charts.frame import (
     _title,
     _titled,
     display_scale,
+    spaced_log_ticks,
 )
 from pinlib.present.charts.render import _alt, _data
 from pinlib.present.charts.style import (
@@ -105,6 +106,19 @@ def pullup_window(cb, rp_min, rp_max, *, chosen_cb, chosen_rp,
     x_title = _title("Bus capacitance Cb", ux)
     y_title = _title("Pull-up resistance Rp", uy)
 
+    # ticks whose labels keep clear of each other at this width (Vega's own ticks on a
+    # log axis label 1, 2, 3 and 4 of a decade: "300" and "400" ran together)
+    xs = np.append(c[ok_lo | ok_hi], x0) * fx
+    ys = np.concatenate([lo[ok_lo], hi[ok_hi], [y0]]) * fy
+    x_ticks = spaced_log_ticks(float(xs.min()), float(xs.max()), _plot_room(width))
+    y_ticks = spaced_log_ticks(float(ys.min()), float(ys.max()), float(height), along=False)
+
+    def xq(field: str = "cb"):
+        return _q(field, x_title, log=True, pad=True, ticks=x_ticks)
+
+    def yq(field: str):
+        return _q(field, y_title, log=True, channel="y", pad=True, ticks=y_ticks)
+
     ok_band = ok_lo & ok_hi
     top = np.maximum(lo, hi)  # display clip: no band where the window is closed
     band = [{"cb": _num(a * fx), "lo": _num(b * fy), "hi": _num(t * fy), "series": region_label}
@@ -117,16 +131,11 @@ def pullup_window(cb, rp_min, rp_max, *, chosen_cb, chosen_rp,
 
     # both axes padded: Rp(min), flat, would otherwise lie on the frame
     area = alt.Chart(_data(band)).mark_area(opacity=_REGION_OPACITY).encode(
-        x=_q("cb", x_title, log=True, pad=True),
-        y=_q("lo", y_title, log=True, channel="y", pad=True), y2=alt.Y2("hi:Q"), color=colour)
+        x=xq(), y=yq("lo"), y2=alt.Y2("hi:Q"), color=colour)
     curves = alt.Chart(_data(lines)).mark_line(strokeWidth=2).encode(
-        x=_q("cb", x_title, log=True, pad=True),
-        y=_q("rp", y_title, log=True, channel="y", pad=True),
-        color=colour, detail=alt.Detail("series:N"))
+        x=xq(), y=yq("rp"), color=colour, detail=alt.Detail("series:N"))
     marker = alt.Chart(_data(point)).mark_point(
         shape="diamond", filled=True, size=140, opacity=1).encode(
-        x=_q("cb", x_title, log=True, pad=True),
-        y=_q("rp", y_title, log=True, channel="y", pad=True),
-        color=colour,
+        x=xq(), y=yq("rp"), color=colour,
         tooltip=[alt.Tooltip("cb:Q", title=x_title), alt.Tooltip("rp:Q", title=y_title)])
     return _titled(alt.layer(area, curves, marker), title, subtitle, width, height)

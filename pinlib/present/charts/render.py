@@ -159,22 +159,23 @@ _COMPILED_MAX = 32
 _SLOT = "pinlib-slot"
 
 
-def _slots(node, rows: list):
-    """``node`` with each inline ``values`` list replaced by a one-row marker of its slot.
+def _slots(node, rows: list, *, data: bool = False):
+    """``node`` with each inline data ``values`` list replaced by a one-row marker of its
+    slot (an axis' ``values``, its ticks, are layout and stay).
 
     Equal lists share a slot, as they share a data source once compiled.
     """
     if isinstance(node, dict):
         out = {}
         for k, v in node.items():
-            if k == "values" and isinstance(v, list):
+            if data and k == "values" and isinstance(v, list):
                 out[k] = [{_SLOT: _slot(v, rows)}]
             elif k == "datasets" and isinstance(v, dict):
-                out[k] = {name: _slots({"values": d}, rows)["values"]
-                          if isinstance(d, list) else _slots(d, rows)
+                out[k] = {name: _slots({"values": d}, rows, data=True)["values"]
+                          if isinstance(d, list) else _slots(d, rows, data=True)
                           for name, d in v.items()}
             else:
-                out[k] = _slots(v, rows)
+                out[k] = _slots(v, rows, data=k == "data")
         return out
     if isinstance(node, list):
         return [_slots(v, rows) for v in node]

@@ -184,4 +184,11 @@ _LEGEND_SYMBOL = 20  # a legend entry's symbol and the gap after it [px]
 _LEGEND_GAP = 14  # between two legend columns [px]
 _LEGEND_OFFSET = 26  # from the plot to the legend below the x axis and its title [px]
 _AXIS_ROOM = 66  # a y axis of numbers with its title, left of the plot [px]
+_TICK_SIZE = 10  # an axis label's font size (Vega's default) [px]
+# Room between two axis labels (common practice, no source): one em between neighbours
+# along a horizontal axis ("300 400" read as one number closer than that), a fifth of
+# an em between the line boxes of labels stacked on a vertical one. [px]
+_TICK_GAP_ALONG = 10.0
+_TICK_GAP_STACKED = 2.0
+_LINE_BOX = 1.164  # DejaVu Sans' line box, ascender to descender (hhea 1901 + 483 of 2048) [em]
 _ROW = 44  # a timing budget's row: the path's name and margin above its bar [px]

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import copy
 import math
 import os
 from pathlib import Path
@@ -38,7 +39,6 @@ from pinlib.present.widgets.common import (
     set_options,
     style,
     toggle_layout,
-    with_button,
 )
 from pinlib.present.widgets.designdoc import (
     _design_doc,
@@ -61,6 +61,7 @@ from pinlib.present.widgets.markup import (
     inline_error,
     note,
     notes_html,
+    notice,
     status_line,
 )
 
@@ -199,8 +200,10 @@ class BusBuilder(_Panel):
     def _bus_controls(self, title: str, protocol: str, supply: float) -> None:
         """The bus: title, protocol, mode, supply and its tolerance."""
         q = self._quantity
+        # a row of its own across the workbench (a title is prose: the control column
+        # showed some 30 characters of it)
         self.title = W.Text(value=title, description="Title", style=style(),
-                            layout=field_layout())
+                            layout=W.Layout(width="auto", max_width="100%"))
         self.protocol = W.ToggleButtons(options=list(OPEN_DRAIN_PROTOCOLS), value=protocol,
                                         description="Protocol",
                                         style=style(button_width="72px"),
@@ -271,6 +274,7 @@ class BusBuilder(_Panel):
                                           ("20–80 %", (0.2, 0.8))], value=(0.3, 0.7),
                                  description="Measured", style=style(), layout=field_layout())
         self.bench_html = W.HTML(layout=W.Layout(width="auto"))
+        self._bench_shown = ""  # the last reading worked out (HTML)
         self.save_path = W.Text(value="", placeholder="board.toml", description="Save as",
                                 style=style(), layout=field_layout())
         self.save_button = W.Button(description="Save", layout=button_layout())
@@ -483,9 +487,17 @@ class BusBuilder(_Panel):
     def _bench(self) -> None:
         from pinlib.engines.opendrain import capacitance_from_rise
 
-        if self.rise_measured.error or self.c_probe.error:
-            return  # the reading shown stays that of the last valid inputs
+        refused = [f for f in (self.rise_measured, self.c_probe) if f.error]
+        if refused:
+            # the reading shown stays that of the last valid inputs, and says so
+            names = " and ".join(f"<b>{e(f.description)}</b>" for f in refused)
+            self.bench_html.value = notice(
+                f"Not recomputed: {names} {'is' if len(refused) == 1 else 'are'} not valid. "
+                + ("The reading below is that of the last valid inputs." if self._bench_shown
+                   else "")) + self._bench_shown
+            return
         self.bench, self.bench_error = None, None
+        self._bench_shown = ""
         t = self.rise_measured.value
         if self.window_data is None:
             self.bench_html.value = note("the bench panel needs a design that evaluates")
@@ -504,7 +516,7 @@ class BusBuilder(_Panel):
             return
         self.bench = BenchReading(t, c_probe, (lo, hi), w.chosen_rp, float(cb), float(rise),
                                   w.chosen_cb)
-        self.bench_html.value = (
+        self.bench_html.value = self._bench_shown = (
             f'<div style="{BLOCK};font-size:12px">With Rp = {format_si(w.chosen_rp, "Ω")} (every '
             f"pull-up on {w.signal.upper()} in parallel): bus capacitance without the probe "
             f"<b>{format_si(cb, 'F')}</b> (the model's Cb: {format_si(w.chosen_cb, 'F')}); "
@@ -518,8 +530,15 @@ class BusBuilder(_Panel):
         be (its ``library`` folders resolved beside it) before anything is written; an
         invalid design raises and leaves any existing file as it was.  An existing file
         is replaced only with ``overwrite`` (as ``pinlib new`` only with ``--force``):
-        without it a :class:`~pinlib.core.errors.WriteError` names the file.
+        without it a :class:`~pinlib.core.errors.WriteError` names the file.  While a
+        quantity field's text is refused nothing is written (an InputError names the
+        fields): the file would hold their last valid values, not what they show.
         """
+        refused = [f.description for f in self.fields.values() if f.error is not None]
+        if refused:
+            raise InputError(M.SAVE_WITH_REFUSED_FIELDS.format(fields=", ".join(refused)),
+                             field="save as",
+                             expected="a valid value in each (its message is under it)")
         path = Path(path)
         text = self.design_text(relative_to=path.parent)
         design_from_text(tomllib.loads(text), text, path)
@@ -550,6 +569,11 @@ class BusBuilder(_Panel):
         except PinlibError as err:
             if err.problem == M.SAVE_WOULD_OVERWRITE.format(file=Path(name)):
                 self.save_overwrite.description = f"overwrite {Path(name).name}"
+            if err.file and err.file not in err.problem:
+                # the file it is about, as the command line writes it ("cannot write in
+                # this folder" alone does not say which folder)
+                err = copy.copy(err)
+                err.problem = f"{err.file}: {err.problem}"
             self.save_error.value = inline_error(err)
             return
         self.save_overwrite.value = False  # the next overwrite is asked for again
@@ -566,21 +590,22 @@ class BusBuilder(_Panel):
 
     def _layout(self) -> W.Widget:
         controls = [
-            self.title, self.protocol, self.mode, self.mode_note, self.supply.box,
+            self.protocol, self.mode, self.mode_note, self.supply.box,
             self.supply_tolerance.box,
             heading("Parts"), self.category, self.fits_supply, self.function,
             self.controller, choice_line(self.controller), self.controller_note,
-            with_button(self.pick, self.add_button), choice_line(self.pick), self.pick_note,
+            with_button_below(self.pick, self.add_button), choice_line(self.pick),
+            self.pick_note,
             with_button_below(self.placed, self.remove_button),
             heading("Trace"), self.trace.box, self.extra_capacitance.box,
             heading("Pull-up"), self.pullup_mode, self.pullup, self.pullup_tolerance.box,
             heading("Bench: a measured rise"), self.rise_measured.box, self.c_probe.box,
             self.levels, self.bench_html,
-            heading("Save"), with_button(self.save_path, self.save_button),
+            heading("Save"), with_button_below(self.save_path, self.save_button),
             self.save_overwrite, self.save_error,
         ]
         outputs = [self.held_html, self.status_html, self.window.widget, self.figures_html,
                    self.notes_html]
         return W.VBox([self._header("Start a design: an I2C/SMBus bus from library parts"),
-                       self._columns(controls, outputs, [self.checks_html])],
+                       self.title, self._columns(controls, outputs, [self.checks_html])],
                       layout=W.Layout(width="100%"))

@@ -33,7 +33,6 @@ from pinlib.present.widgets.common import (
     set_options,
     style,
     toggle_layout,
-    with_button,
 )
 from pinlib.present.widgets.designdoc import (
     _design_doc,
@@ -46,9 +45,11 @@ from pinlib.present.widgets.designdoc import (
 from pinlib.present.widgets.markup import (
     caution_html,
     checks_table,
+    e,
     error_html,
     figures_table,
     notes_html,
+    notice,
     status_line,
 )
 
@@ -136,6 +137,7 @@ class LineExplorer(_Panel):
         self.placed = W.Select(options=[], rows=5, description="Receivers", style=style(),
                                layout=field_layout())
         self.remove_button = W.Button(description="Remove", layout=button_layout())
+        self.placed_note = note_widget()  # receivers placed for another pin function
         self.supply = self._quantity(QuantityField("supply", "Supply", "V", supply, lo=0.8,
                                                    hi=5.5, placeholder="3.3 V"))
         self.trace = _Trace(self, length=length, max_length=2.0, min_length=0.005)
@@ -218,7 +220,23 @@ class LineExplorer(_Panel):
         with self._hold():
             set_options(self.pick, options, self.pick.value, what="Receiver",
                         said=self.pick_note)
+        self._say_other_functions()
         self._changed()
+
+    def _say_other_functions(self) -> None:
+        """Under the list: the receivers placed for another function than the output
+        pin's (kept when the pin changes), unless any function is asked for."""
+        part = self.library.parts.get(self.driver_part.value)
+        pin = part.pins.get(self.driver_pin.value) if part and self.driver_pin.value else None
+        other = [] if pin is None or self.any_function.value else [
+            f"{r} {p}: {n} ({fn})" for r, p, n in self._receivers
+            if (fn := self.library.parts[p].pins[n].function) != pin.function]
+        self.placed_note.value = "" if not other else notice(
+            f"{e(', '.join(other))} {'receives' if len(other) == 1 else 'receive'} "
+            f"another function than the output pin ({e(pin.function)}): Remove "
+            f"{'it' if len(other) == 1 else 'them'}, or tick "
+            "<i>receivers of any pin function</i> to keep "
+            f"{'it' if len(other) == 1 else 'them'}.")
 
     def _set_series(self, value) -> None:
         if isinstance(value, str) and value.strip().lower() in ("auto", "none"):
@@ -240,6 +258,7 @@ class LineExplorer(_Panel):
         self._receivers.append((ref, part_id, pin))
         with self._hold():
             self.placed.options = [(f"{r}  {p}: {n}", r) for r, p, n in self._receivers]
+        self._say_other_functions()
         self._changed()
         return ref
 
@@ -252,6 +271,7 @@ class LineExplorer(_Panel):
         self._receivers = [x for x in self._receivers if x[0] != ref]
         with self._hold():
             self.placed.options = [(f"{r}  {p}: {n}", r) for r, p, n in self._receivers]
+        self._say_other_functions()
         self._changed()
 
     @property
@@ -377,9 +397,10 @@ class LineExplorer(_Panel):
         controls = [
             self.driver_part, choice_line(self.driver_part), self.driver_pin, self.pin_note,
             self.supply.box,
-            heading("Receivers"), self.any_function, with_button(self.pick, self.add_button),
+            heading("Receivers"), self.any_function,
+            with_button_below(self.pick, self.add_button),
             choice_line(self.pick), self.pick_note,
-            with_button_below(self.placed, self.remove_button),
+            with_button_below(self.placed, self.remove_button), self.placed_note,
             heading("Trace"), self.trace.box,
             heading("Termination"), self.series_mode, self.series,
             heading("Placement"), self.placement, self.receiver_view,
