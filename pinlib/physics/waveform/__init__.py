@@ -57,9 +57,11 @@ from pinlib.physics.waveform.metrics import (  # noqa: F401
     undershoot,
 )
 from pinlib.physics.waveform.tree import (  # noqa: F401
+    LUMP_FRACTION,
     STEPS_PER_EDGE,
     TreeWaveform,
     choose_step,
+    lump_short,
     tree_response,
 )
 
@@ -78,4 +80,6 @@ __all__ = [
     "tree_response",
     "choose_step",
     "STEPS_PER_EDGE",
+    "lump_short",
+    "LUMP_FRACTION",
 ]
