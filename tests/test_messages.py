@@ -2338,14 +2338,15 @@ def _(env):
     return _fails(lambda e: _check(e.design(text)), env)
 
 
-@case("TOO_MANY_TIME_STEPS", M.TOO_MANY_TIME_STEPS.format(steps="5.59e+10",
+@case("TOO_MANY_TIME_STEPS", M.TOO_MANY_TIME_STEPS.format(steps="5.59e+07",
                                                            limit="1,000,000"))
 def _(env):
-    # A 1000 m cable (the design's longest length) beside a 1 µm stub of trace: the step
-    # must divide the stub's 5.8 fs delay over a record of 60 cable delays.
+    # A 1000 m cable (the design's longest length) beside 1 mm of trace: the step must
+    # divide the trace's 5.8 ps delay (above 1/1000 of the ramp, so not lumped) over a
+    # record of 60 cable delays.
     body = SPI_BUS.replace(
         'lines.sclk = { length = "3 cm", geometry = "g" }',
-        'lines.sclk = { sections = [{ length = "0.001 mm", capacitance = "1.1 pF/cm", '
+        'lines.sclk = { sections = [{ length = "1 mm", capacitance = "1.1 pF/cm", '
         'delay = "58 ps/cm" }, { part = "twisted-pair-cable", length = "1000 m" }] }')
     err = _fails(lambda e: _check(e.design(body)), env)
     # the stub's own length is named (it was the line, "bus.s.lines.sclk"), with 0 (a

@@ -29,6 +29,7 @@ from pinlib.engines.readout import explained
 from pinlib.model.design import Line
 from pinlib.model.result import Check, LineResult, check_max, rule_of_thumb
 from pinlib.physics import driver as drv
+from pinlib.physics import waveform as wf
 
 
 @value_class(frozen=True)
@@ -152,8 +153,10 @@ def _steps_error(exc: _TooManySteps, line: Line, signal: str, bus_id) -> InputEr
     out, and the length below which this record alone needs too many steps (a longer
     record of another edge may need more); else the line."""
     stretches = line_stretches(line)
-    timed = [(s.td, i) for i, s in enumerate(stretches) if s.td > 0]
-    td, i = min(timed, default=(math.nan, -1))
+    # the section solved as a line whose delay the step divides (a shorter one is lumped)
+    timed = [(abs(s.td - exc.td), i) for i, s in enumerate(stretches) if s.td > 0]
+    i = min(timed, default=(math.nan, -1))[1]
+    td = stretches[i].td if i >= 0 else math.nan
     loc = line.sections[i].loc if 0 <= i < len(line.sections) else ()
     if loc and td <= exc.dt * (1 + 1e-9):  # the section's delay is the step
         s = line.sections[i]
@@ -194,6 +197,7 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
         notes.append("a section without a delay counts as a lumped capacitance "
                      + ("half at each of its two points" if net else "at the far end"))
     pullup = _driver_models(a, res)
+    _lumped_note(a, notes)
     if not a.drivers:
         for name, unit in _FIGURE_UNITS:
             res.figure(name, None, unit)
@@ -203,6 +207,24 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
     _add_checks(a, res, clock, clock_line, warn_margin)
     _add_figures(a, res)
     return a
+
+
+def _lumped_note(a: LineAnalysis, notes: list) -> None:
+    """A note naming each section short enough against a driver's ramp to be solved as
+    its capacitance (:data:`pinlib.physics.waveform.LUMP_FRACTION`, 1/1000)."""
+    ramps = [r for m in a.models.values()
+             for c in (m, m.fast) if c is not None for r in (c.t_ramp_rise, c.t_ramp_fall)]
+    slowest = max(ramps, default=0.0)
+    for i, s in enumerate(a.stretches):
+        if not 0.0 < s.td < wf.LUMP_FRACTION * slowest:
+            continue
+        name = ("–".join(a.line.route[i]) if a.line.route else f"section {i + 1}")
+        where = "half at each of its two points" if a.net else "at the far end"
+        notes.append(
+            f"{name} ({format_si(s.length, 'm')}, a delay of {format_si(s.td, 's')}) counts "
+            f"as a lumped capacitance, {where}, on each edge whose ramp is longer than "
+            f"{format_si(s.td / wf.LUMP_FRACTION, 's')} (1,000 times its delay; so lumped, "
+            "stubs kept every edge within 0.5 % of ngspice's)")
 
 
 def line_stretches(line: Line) -> list:

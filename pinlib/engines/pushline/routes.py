@@ -334,9 +334,12 @@ def _unit_tree(net: RouteNet, source: int, r_source: float, t_ramp: float,
     each node's smallest and largest sample (:func:`_span`); ``tau`` and ``t_end`` are
     :func:`_record`'s."""
     c_total = float(sum(caps)) + sum(s.c for _, _, s in net.sections if s.td > 0)
-    delays = [s.td for _, _, s in net.sections if s.td > 0]
+    # a section far shorter than the ramp is its capacitance (wf.lump_short: its delay
+    # would set the step for no visible change)
+    sections, caps, _ = wf.lump_short(
+        [(a, b, s.z0 if s.td > 0 else 1.0, s.td) for a, b, s in net.sections], caps, t_ramp)
+    delays = [td for *_, td in sections if td > 0]
     distributed = distributed and bool(delays)
-    sections = [(a, b, s.z0 if s.td > 0 else 1.0, s.td) for a, b, s in net.sections]
     n_nodes = len(net.names)
     for _ in range(_ROUTE_EXTENSIONS + 1):
         # the tree solver's own step (20 per shortest ramp or delay; its error against
@@ -347,7 +350,7 @@ def _unit_tree(net: RouteNet, source: int, r_source: float, t_ramp: float,
         dt = max(dt, t_end / _MAX_STEPS)
         if distributed:  # the shortest delay in whole steps; the others interpolated
             dt = min(delays) / math.ceil(min(delays) / dt * (1.0 - 1e-12))
-        t = _grid(t_end, dt)
+        t = _grid(t_end, dt, min(delays) if distributed else math.nan)
         if distributed:
             unit = wf.tree_response(t, 1.0, t_ramp, r_source, sections, list(caps),
                                     source=source, edge="rise").v

@@ -89,12 +89,15 @@ class EdgeWave:
 class _TooManySteps(InputError):
     """A record longer than :data:`MAX_TIME_STEPS`; :func:`analyse_line` names the line,
     or the section whose delay set the step (``t_end`` and ``dt``: the record and its
-    step, NaN where there is no finite record). [s]"""
+    step, NaN where there is no finite record; ``td``: the shortest delay solved as a
+    line, which the step divides, NaN where none is). [s]"""
 
-    t_end = dt = math.nan
+    t_end = dt = td = math.nan
 
 
-def _grid(t_end: float, dt: float) -> np.ndarray:
+def _grid(t_end: float, dt: float, td: float = math.nan) -> np.ndarray:
+    """``arange(n + 1) * dt`` over ``t_end``, or :class:`_TooManySteps` (``td``: the
+    shortest delay solved as a line, which ``dt`` divides, named in it)."""
     steps = t_end / dt
     if not math.isfinite(steps):  # a NaN delay or impedance: no count of steps to name
         raise _TooManySteps(
@@ -107,7 +110,7 @@ def _grid(t_end: float, dt: float) -> np.ndarray:
             value=f"{format_si(t_end, 's')} in steps of {format_si(dt, 's')}",
             hint="the step divides the shortest section delay: merge a very short section "
                  "into its neighbour (or drop it), or shorten the longest section")
-        exc.t_end, exc.dt = t_end, dt
+        exc.t_end, exc.dt, exc.td = t_end, dt, td
         raise exc
     n = int(math.ceil(steps))
     return np.arange(n + 1) * dt
@@ -282,8 +285,14 @@ def edge_grid(stretches: Sequence[Stretch], r_source: float, t_ramp: float, c_fa
     c_line = sum(s.c for s in stretches)
     c_total = c_line + c_far
     tau = r_source * c_total
-    sections = [(s.z0, s.td) for s in stretches if s.td > 0.0]
-    c_lumped_far = c_far + sum(s.c for s in stretches if s.td <= 0.0)
+    # a section far shorter than the ramp counts as a capacitance (wf.LUMP_FRACTION: its
+    # delay would set the step for no visible change), at the far end as one without a
+    # delay does
+    short = wf.LUMP_FRACTION * t_ramp
+    solved = [s.td > 0.0 and not s.td < short for s in stretches]
+    sections = [(s.z0, s.td) for s, x in zip(stretches, solved, strict=True) if x]
+    c_lumped_far = c_far + sum(s.td / s.z0 if s.td > 0.0 else s.c
+                               for s, x in zip(stretches, solved, strict=True) if not x)
     delays = [td for _, td in sections]
     distributed = distributed and bool(sections)
     first = distributed and t_end is None
@@ -296,10 +305,10 @@ def edge_grid(stretches: Sequence[Stretch], r_source: float, t_ramp: float, c_fa
     else:  # exact at any sample: the step only has to sample the edge
         dt = wf.choose_step([], 0.0, tau=max(t_ramp, tau))
     dt = max(dt, t_end / _MAX_STEPS)
+    d_min = min(delays) if distributed else math.nan
     if distributed:
-        d_min = min(delays)
         dt = d_min / math.ceil(d_min / dt)
-    t = _grid(t_end, dt)
+    t = _grid(t_end, dt, d_min)
     t_first = _first_length(sections, r_source, t_ramp, c_lumped_far) if first else None
     n_first = None if t_first is None else _same_step(t, math.ceil(t_first / dt) + 1)
     if n_first is None:
