@@ -384,3 +384,17 @@ def test_a_bare_number_is_offered_its_likely_units(x, unit, field, units):
     with pytest.raises(UnitError) as info:
         parse(str(x), unit, field=field)
     assert f'"{x} {units[0]}"' in info.value.hint
+
+
+def test_a_bare_number_is_given_one_example_its_own():
+    # '28' for a length: the hint writes the user's number with units, so the expected
+    # part no longer adds the generic "(e.g. '14 cm')" beside it
+    with pytest.raises(UnitError) as info:
+        parse("28", "m", field="length")
+    text = str(info.value)
+    assert "expected a length in m;" in text and "e.g. '14 cm'" not in text
+    assert text.count("e.g.") == 1 and '"28 cm"' in text
+    # a text that is no number keeps the generic example
+    with pytest.raises(UnitError) as info:
+        parse("abc", "m", field="length")
+    assert "e.g. '14 cm'" in str(info.value)

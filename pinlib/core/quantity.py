@@ -130,7 +130,10 @@ def _split_length(text: str) -> float | None:
 
 
 def _fail(text, unit, field, problem, hint=None):
-    return UnitError(problem, field=field, value=text, expected=unit_name(unit), hint=hint)
+    """The error of a refused quantity; where the hint gives the user's own number with
+    a unit, the expected part leaves out the generic example (one example, not two)."""
+    expected = f"{UNITS[unit][0]} in {unit}" if hint else unit_name(unit)
+    return UnitError(problem, field=field, value=text, expected=expected, hint=hint)
 
 
 def parse(text: object, unit: str, *, field: str | None = None) -> float:
