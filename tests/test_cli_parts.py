@@ -335,6 +335,17 @@ def test_record_names_the_typ_field_it_refuses(lib, capsys, typ, problem):
     assert (lib[1] / "eeprom.toml").read_bytes() == before
 
 
+def test_record_holds_a_typical_level_to_the_limit_s_range(lib, capsys):
+    # "9 VDD" is refused as a level; as its typical value it was stored
+    before = (lib[1] / "eeprom.toml").read_bytes()
+    code, _, err = run(capsys, "parts", "record", "eeprom", "sda.v_il", "0.3 VDD", "--typ",
+                       "9 VDD", "--source", "rev B", "--library", "team")
+    err = " ".join(err.split())
+    assert code == 2 and "field 'pins.sda.v_il.typ'" in err, err
+    assert "(got '9 VDD')" in err and "a scale of VDD within ±2" in err
+    assert (lib[1] / "eeprom.toml").read_bytes() == before
+
+
 def test_check_names_the_typ_field_of_a_file(lib, capsys, tmp_path):
     # the same field where the typical value is written in the file by hand
     bad = tmp_path / "bad"

@@ -191,12 +191,17 @@ def threshold_parser(lo: float = -50.0, hi: float = 50.0):
             return raw
         field = _field_name(name)
         text, basis, source, typ = _split_table(raw, field)
+        th = level(text, field)
+        typ_v = None if typ is None else level(typ, f"{field}.typ" if field else None)
+        return Sourced(th, "V", str(text), basis, source, typ_v)
+
+    def level(text, field):
+        # a typical level is held to the same range as the limit beside it
         th = parse_threshold(text, field=field)
         if not (-2.0 <= th.scale <= 2.0 and lo <= th.offset <= hi):
             raise UnitError(M.OUTSIDE_RANGE, field=field, value=text,
                             expected=f"a scale of VDD within ±2 and an offset within {lo}..{hi} V")
-        typ_v = None if typ is None else parse_threshold(typ, field=f"{field}.typ")
-        return Sourced(th, "V", str(text), basis, source, typ_v)
+        return th
 
     return validate
 
