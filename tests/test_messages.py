@@ -578,9 +578,12 @@ def _typ_beyond(env):
     return got
 
 
-@case("TYP_BEYOND_LIMIT", M.TYP_BEYOND_LIMIT.format(typ="9 pF"))
+@case("TYP_BEYOND_LIMIT", M.TYP_BEYOND_LIMIT.format(limit="8 pF"))
 def _(env):
-    return _typ_beyond(env)
+    err = _typ_beyond(env)
+    # the typical value is the one named and quoted; the limit is in the message
+    assert err.field.endswith("c_in.typ") and err.value == "9 pF"
+    return err
 
 
 @case("TYP_SIDE_RULE", M.TYP_SIDE_RULE.format(rel="at most", field="c_in", side="maximum"))

@@ -259,9 +259,10 @@ def test_a_typical_value_beyond_its_limit_is_a_problem_naming_the_line(team, cap
                                      encoding="utf-8")
     assert main(["parts", "check", str(team)]) != 0
     out = " ".join(capsys.readouterr().out.split())
-    assert "t-typ.toml:9, field 'pins.sda.c_in': its typical value 5 pF lies beyond" in out
+    assert ("t-typ.toml:9, field 'pins.sda.c_in.typ': the typical value lies beyond the "
+            "limit beside it, 4 pF (got '5 pF')") in out
     assert "which for c_in is the maximum" in out
-    assert "field 'timing.f_max'" in out and "which for f_max is the minimum" in out
+    assert "field 'timing.f_max.typ'" in out and "which for f_max is the minimum" in out
     assert "pins.sda.v_il" not in out and "pins.sda.v_ol" not in out
     (team / "t-typ.toml").write_text(TYP_PART.format(c_typ="3.5 pF", f_typ="1 MHz"),
                                      encoding="utf-8")

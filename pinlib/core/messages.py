@@ -134,7 +134,7 @@ VALUE_TABLE_WITHOUT_VALUE = "a value table without 'value'"
 SOURCE_NOT_TEXT = "a source must be text"
 # plausible.py (warnings: the part still loads)
 IMPLAUSIBLE_VALUE = "an implausible value for this field"
-TYP_BEYOND_LIMIT = "its typical value {typ} lies beyond the limit beside it"
+TYP_BEYOND_LIMIT = "the typical value lies beyond the limit beside it, {limit}"
 TYP_SIDE_RULE = ("a typ {rel} the value, which for {field} is the {side} (one of "
                  "them mistyped, or the two swapped?)")
 PLAUSIBLE_RANGE = "{range} (common practice, no source)"

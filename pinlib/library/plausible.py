@@ -179,11 +179,13 @@ def part_warnings(part: Part, lib=None, *, own_only: bool = False) -> list[Libra
             return
         rule = typ_beyond(value, field, ends)
         if rule:
+            # the typical value is what is named and quoted, the limit beside it told
             typ = value.typ
-            out.append(LibraryError(M.TYP_BEYOND_LIMIT.format(
-                typ=getattr(typ, "text", "") or format_si(float(typ), value.unit)),
-                field=".".join(map(str, path)), value=value.text, expected=rule,
-                **_where(lib, part.id, value, path)))
+            out.append(LibraryError(M.TYP_BEYOND_LIMIT.format(limit=value.text),
+                                    field=".".join(map(str, path + ("typ",))),
+                                    value=getattr(typ, "text", "")
+                                    or format_si(float(typ), value.unit),
+                                    expected=rule, **_where(lib, part.id, value, path)))
         rng = implausible(value, field, drive, ends)
         if rng:
             out.append(LibraryError(M.IMPLAUSIBLE_VALUE, field=".".join(map(str, path)),
