@@ -245,6 +245,28 @@ def test_new_then_record(lib, capsys):
     assert values["timing.f_max"]["origin"] == "flash"
 
 
+def test_new_fits_its_lines_to_80_columns_and_the_next_command_still_pastes(
+        lib, capsys, monkeypatch):
+    # a 50-character id in a folder not yet a library: the "next:" command ran to 125
+    # columns; on a terminal it is continued with " \\" as a shell reads it
+    monkeypatch.setenv("COLUMNS", "80")
+    new_id = "a-very-long-part-class-identifier-for-testing-wrap"
+    code, out, _ = run(capsys, "parts", "new", new_id, "--from", "base", "--into", "other",
+                       "--library", "team")
+    assert code == 0
+    assert max(len(x) for x in out.splitlines()) <= 80, out
+    nxt = out[out.index("next: "):].rstrip("\n")
+    assert " \\\n    " in nxt
+    assert nxt.replace(" \\\n    ", " ") == (
+        f'next: pinlib parts record {new_id} PIN.FIELD "VALUE" --source "..." '
+        "--library other")
+    # in a pipe (no COLUMNS, not a terminal) each stays one line
+    monkeypatch.delenv("COLUMNS")
+    code, out, _ = run(capsys, "parts", "new", new_id + "-b", "--from", "base", "--into",
+                       "other", "--library", "team")
+    assert [x[:6] for x in out.splitlines()] == ["create", "next: "]
+
+
 def test_new_without_a_source_writes_none_and_check_lists_it(lib, capsys):
     _, team = lib
     code, _, err = run(capsys, "parts", "new", "x1", "--from", "base", "--into", "team")

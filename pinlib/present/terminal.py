@@ -121,6 +121,24 @@ def fitted(line: str, stream=None) -> str:
     return "\n".join(ln.replace(_NBSP, " ") for ln in wrap(glued, cols))
 
 
+def fitted_command(head: str, words: list[str], stream=None) -> str:
+    """``head`` and a command's ``words`` on one line, or, where :func:`fitted` would wrap
+    it, on lines each continued with `` \\`` (as a shell reads them: the command still
+    pastes whole), each word kept whole."""
+    line = " ".join([head, *words])
+    cols = table_width(stream)
+    if not cols or len(line) <= cols:
+        return line
+    lines, cur = [], head
+    for word in words:
+        if len(cur) + len(word) + 3 > cols and cur.strip():  # a space, the word, " \\"
+            lines.append(cur + " \\")
+            cur = "    " + word
+        else:
+            cur += " " + word
+    return "\n".join(lines + [cur])
+
+
 #: The characters a shell word keeps unquoted: ``shlex.quote``'s (``\w`` in ASCII and
 #: ``@%+=:,./-``), written out so a check does not import shlex for one path.
 _SHELL_SAFE = frozenset("abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789"

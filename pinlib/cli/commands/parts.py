@@ -18,7 +18,7 @@ from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
 from pinlib.core import nearby
 from pinlib.core.errors import InputError
-from pinlib.present.terminal import fitted
+from pinlib.present.terminal import fitted, fitted_command
 from pinlib.present.terminal import shown_path as _rel
 
 __all__ = ["add_parser", "run"]
@@ -497,7 +497,7 @@ def _run_new(args) -> int:
     lib = _load(args)
     path = new_part(lib, args.id, args.from_class, folder, title=args.title,
                     source=args.source)
-    print(f"created {_rel(path)} (extends {args.from_class})")
+    print(fitted(f"created {_rel(path)} (extends {args.from_class})"))
     if not args.source.strip():
         print(fitted(f"note: no --source: name the datasheet in the provenance line of "
                      f"{_rel(path)} (pinlib parts check lists it until then)", sys.stderr),
@@ -506,8 +506,9 @@ def _run_new(args) -> int:
     if folder.resolve() not in known:
         print(fitted(f"note: {_rel(folder)} is not a library folder yet: pass --library "
                      f"{folder} or add it to PINLIB_LIBRARY", sys.stderr), file=sys.stderr)
-    print(f"next: pinlib parts record {args.id} PIN.FIELD \"VALUE\" --source \"...\""
-          + (f" --library {folder}" if folder.resolve() not in known else ""))
+    print(fitted_command("next:", ["pinlib", "parts", "record", args.id, "PIN.FIELD",
+                                   '"VALUE"', '--source "..."']
+                         + ([f"--library {folder}"] if folder.resolve() not in known else [])))
     return 0
 
 
@@ -544,7 +545,7 @@ def _warn_implausible(lib, pid, field=None) -> list:
 
 def _warn(line: str) -> None:
     """A warning on standard error: wrapped to a terminal, one line in a file or a pipe."""
-    from pinlib.present.terminal import fitted
+    from pinlib.present.terminal import fitted, fitted_command
 
     print(fitted(line, sys.stderr), file=sys.stderr)
 
