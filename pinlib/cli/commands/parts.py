@@ -545,7 +545,7 @@ def _warn_implausible(lib, pid, field=None) -> list:
 
 def _warn(line: str) -> None:
     """A warning on standard error: wrapped to a terminal, one line in a file or a pipe."""
-    from pinlib.present.terminal import fitted, fitted_command
+    from pinlib.present.terminal import fitted
 
     print(fitted(line, sys.stderr), file=sys.stderr)
 
