@@ -124,6 +124,18 @@ def test_unknown_key_in_a_route_stretch_is_refused(tmp_path):
     assert "route" in info.value.field and "stub" in info.value.field
 
 
+def test_a_misspelt_key_of_a_route_stretch_lists_the_keys_as_written(tmp_path):
+    # the keys a stretch takes are listed as the file spells them: "from", never the
+    # Python attribute behind it ("from_")
+    bad = '{ form = "U2", to = "U3", length = "2 cm", geometry = "g" }'
+    with pytest.raises(DesignError) as info:
+        load_design(_design(tmp_path, _stretch("U1", "U2"), bad))
+    err = info.value
+    assert err.field == "bus[0].lines.sclk.route[1].form"
+    assert "from_" not in err.message
+    assert "part, from, to" in err.message and err.message.endswith("closest: from")
+
+
 # ---------------------------------------------------------------- the engine on routes
 
 def _check(text: str, tmp_path):

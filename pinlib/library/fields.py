@@ -148,7 +148,8 @@ def model_at(root: type[Record], loc) -> type[Record] | None:
     the models (a plain value, a key of a free table)."""
     model, keys, i = root, list(loc)[:-1], 0
     while i < len(keys):
-        info = model.fields().get(keys[i]) if isinstance(keys[i], str) else None
+        by_key = {f.key: f for f in model.fields().values()}  # as the file spells them
+        info = by_key.get(keys[i]) if isinstance(keys[i], str) else None
         if info is None:
             return None
         inner = mapping_of(info) or sequence_of(info)
@@ -168,7 +169,7 @@ def unknown_field_help(root: type[Record], loc, format_name: str) -> tuple[str, 
     model = model_at(root, loc)
     if model is None or not loc:
         return M.EXPECTED_FIELD_OF.format(format=format_name, fields="see its documentation"), None
-    names = list(model.fields())
+    names = [f.key for f in model.fields().values()]  # "from", not the attribute from_
     key = str(loc[-1])
     shown = ", ".join(names[:_FIELDS_SHOWN])
     if len(names) > _FIELDS_SHOWN:  # a message stays readable: the rest in the docs
