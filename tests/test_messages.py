@@ -1614,6 +1614,11 @@ def _(env):
     return _fails(lambda e: e.design(_routed(many)), env)
 
 
+@case("ROUTE_EMPTY")
+def _(env):
+    return _fails(lambda e: e.design(_routed("")), env)
+
+
 @case("ROUTE_CLOSES_LOOP")
 def _(env):
     return _fails(lambda e: e.design(_routed(

@@ -99,6 +99,19 @@ def test_missing_device_is_named(tmp_path):
     assert "U3" in str(info.value)
 
 
+def test_an_empty_route_is_named_as_such(tmp_path):
+    # route = [] was read as no route at all, and the line blamed for its missing length
+    path = tmp_path / "d.toml"
+    path.write_text(HEAD + "lines.sclk = { route = [] }\n", encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    err = info.value
+    assert err.problem == M.ROUTE_EMPTY
+    assert err.field == "bus[0].lines.sclk.route"
+    assert err.line == HEAD.count("\n") + 1
+    assert "at least one stretch" in err.expected
+
+
 def test_route_and_a_stretch_together_are_refused(tmp_path):
     path = tmp_path / "d.toml"
     path.write_text(HEAD + 'lines.sclk = { length = "3 cm", route = [' + _stretch("U1", "U2")

@@ -94,9 +94,16 @@ def _model_in(annotation) -> type[Record] | None:
     return None
 
 
+def _bare(annotation):
+    """The type inside an ``Annotated[...]`` (a field with a converter or a rule)."""
+    while typing.get_origin(annotation) is typing.Annotated:
+        annotation = typing.get_args(annotation)[0]
+    return annotation
+
+
 def submodel(info) -> type[Record] | None:
     """The model of a nested table (``supply``, ``timing``), None for maps and lists."""
-    origin = typing.get_origin(info.annotation)
+    origin = typing.get_origin(_bare(info.annotation))
     if origin in (dict, tuple, list):
         return None
     return _model_in(info.annotation)
@@ -104,15 +111,17 @@ def submodel(info) -> type[Record] | None:
 
 def mapping_of(info) -> type[Record] | None:
     """``dict[str, Pin]`` -> Pin (tables of named items: ``pins``, ``sides``)."""
-    if typing.get_origin(info.annotation) is dict:
-        return _model_in(typing.get_args(info.annotation)[1])
+    tp = _bare(info.annotation)
+    if typing.get_origin(tp) is dict:
+        return _model_in(typing.get_args(tp)[1])
     return None
 
 
 def sequence_of(info) -> type[Record] | None:
     """``tuple[Edge, ...]`` -> Edge (arrays of tables: ``edges``)."""
-    if typing.get_origin(info.annotation) in (tuple, list):
-        return _model_in(typing.get_args(info.annotation)[0])
+    tp = _bare(info.annotation)
+    if typing.get_origin(tp) in (tuple, list):
+        return _model_in(typing.get_args(tp)[0])
     return None
 
 

@@ -133,9 +133,20 @@ class RawRouteStretch(RawSection):
     to: PointName
 
 
+def _a_route(raw, name=None):
+    """A route as written; an empty one is refused (it would read as no route, and the
+    line would then be blamed for a missing length)."""
+    if isinstance(raw, list) and not raw:
+        raise DesignError(M.ROUTE_EMPTY, value="[]",
+                          expected='at least one stretch, e.g. route = [{ from = "U1", '
+                                   'to = "U2", length = "2 cm", geometry = "NAME" }]')
+    return raw
+
+
 class RawTrace(RawSection):
     sections: tuple[RawSection, ...] = ()
-    route: tuple[RawRouteStretch, ...] = ()  # push-pull lines only
+    # push-pull lines only
+    route: Annotated[tuple[RawRouteStretch, ...], Convert(_a_route)] = ()
     length: Length | None = None  # type: ignore[assignment]
     series_resistor: SeriesSetting = "none"  # push-pull lines only
     extra_capacitance: Capacitance = 0.0
