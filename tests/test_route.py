@@ -260,6 +260,23 @@ def test_max_clock_follows_the_worst_device_and_names_it(tmp_path):
     assert got["U2"] == pytest.approx(got["U3"], rel=1e-9)
 
 
+def test_candidates_name_the_receiver_of_a_line_check_that_sets_the_worst(tmp_path):
+    # on a route each receiver has its own overshoot, edge and ringing: the ranking's
+    # "set by" names which one, as pinlib check does (it read "sclk Overshoot")
+    from pinlib.core.labels import check_label
+    from pinlib.studies.candidates import rank_candidates
+
+    design, _ = _check(_flight_design(), tmp_path)
+    ranking = rank_candidates(design, "U3")
+    text = ranking.format_text(width=None)
+    on_lines = [c.worst_check for c in ranking.candidates
+                if c.worst_check and c.worst_check.get("line")]
+    assert on_lines  # the 40 cm stub rings: line checks set the worst margins
+    for wc in on_lines:
+        assert wc["subject"]
+        assert f"{wc['line']} {check_label(wc['id'])} {wc['subject']}" in text
+
+
 def test_cipo_each_peripheral_drives_from_its_own_point(tmp_path):
     _, bus = _check(_flight_design(), tmp_path)
     la = bus.workings.lines["cipo"]
