@@ -308,6 +308,36 @@ def test_a_route_with_every_device_at_one_point_matches_the_simple_form(tmp_path
     assert fb["overshoot"].value == pytest.approx(fa["overshoot"].value, abs=0.01)
 
 
+def test_a_line_fed_from_its_middle_is_as_long_as_its_longer_arm(tmp_path):
+    # U2 -15 cm- U1 -10 cm- U3, the controller between them: its edge travels 15 cm at
+    # most (derived from the route), not the 25 cm from U2 to U3; the delay, the
+    # electrical length and the line-delay check follow the longer arm
+    routed = HEAD + """lines.sclk = { route = [
+  { from = "U2", to = "U1", length = "15 cm", geometry = "g" },
+  { from = "U1", to = "U3", length = "10 cm", geometry = "g" },
+] }
+"""
+    simple = HEAD + 'lines.sclk = { length = "15 cm", geometry = "g" }\n'
+    _, a = _check(routed, tmp_path)
+    _, b = _check(simple, tmp_path)
+    la, lb = a.workings.lines["sclk"], b.workings.lines["sclk"]
+    want = lb.delay
+    assert la.delay == pytest.approx(want, rel=1e-12)
+    assert _line(a, "sclk").figures["trace_delay"].value == pytest.approx(want, rel=1e-12)
+    check = next(c for c in _line(a, "sclk").checks if c.id == "line-delay")
+    assert check.value == pytest.approx(want, rel=1e-12)
+    assert la.ratio == pytest.approx(want / la.edge_alone, rel=1e-12)
+    # CIPO from the far peripheral: the whole way to the controller counts
+    cipo = HEAD + """lines.cipo = { route = [
+  { from = "U2", to = "U1", length = "15 cm", geometry = "g" },
+  { from = "U1", to = "U3", length = "10 cm", geometry = "g" },
+] }
+lines.sclk = { length = "3 cm", geometry = "g" }
+"""
+    _, c = _check(cipo, tmp_path)
+    assert c.workings.lines["cipo"].delay == pytest.approx(25 / 15 * want, rel=1e-9)
+
+
 def test_route_test_design_checks_and_reports(tmp_path, capsys):
     code = main(["check", str(ROUTE_DESIGN), "--detail"])
     out = capsys.readouterr().out
