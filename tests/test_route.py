@@ -46,7 +46,11 @@ def _stretch(a, b, length="2 cm"):
 
 
 def _design(tmp_path, *stretches, sig="sclk"):
-    text = HEAD + f"lines.{sig} = {{ route = [\n  " + ",\n  ".join(stretches) + "\n] }\n"
+    return _design_text(tmp_path, HEAD, *stretches, sig=sig)
+
+
+def _design_text(tmp_path, head, *stretches, sig="sclk"):
+    text = head + f"lines.{sig} = {{ route = [\n  " + ",\n  ".join(stretches) + "\n] }\n"
     if sig != "sclk":
         text += 'lines.sclk = { length = "3 cm", geometry = "g" }\n'
     path = tmp_path / "d.toml"
@@ -347,6 +351,28 @@ def test_route_test_design_checks_and_reports(tmp_path, capsys):
     assert main(["report", str(ROUTE_DESIGN), "--html", str(html)]) == code  # as check
     text = html.read_text(encoding="utf-8")
     assert "U1 ─2 cm─ T1" in text  # the route drawn as text
+
+
+def test_a_long_route_diagram_keeps_within_80_columns(tmp_path):
+    # invented: a daisy chain of twelve peripherals 2.5 cm apart, a 150-character row
+    # when drawn on one; a branch off its far end too
+    from pinlib.present.review.text import route_diagram
+
+    devices = "".join(f'  {{ ref = "U{i}", part = "nor-flash-spi" }},\n' for i in range(4, 14))
+    last = '  { ref = "U3", part = "nor-flash-spi" },\n'
+    head = HEAD.replace(last, last + devices)
+    chain = [_stretch(f"U{i}", f"U{i + 1}", "2.5 cm") for i in range(1, 13)]
+    line = load_design(_design_text(tmp_path, head, *chain, _stretch("U12", "TP1")))
+    rows = route_diagram(line.buses[0].lines["sclk"])
+    assert all(len(r) <= 80 for r in rows), rows
+    assert len(rows) == 3
+    assert rows[0].startswith("U1 ─2.5 cm─ U2 ─2.5 cm─ U3")
+    # the second row goes on from the point the first ended at; the branch names its point
+    assert rows[1].startswith("… " + rows[0].split()[-1] + " ─")
+    # every point of the path once, in order, across its rows
+    names = [w for w in (rows[0] + " " + rows[1].split(" ", 2)[2]).split() if w.startswith("U")]
+    assert names == [f"U{i}" for i in range(1, 14)]
+    assert rows[2].strip() == "└ U12 ─2 cm─ TP1"
 
 
 def test_json_names_each_receiver(capsys):
