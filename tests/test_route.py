@@ -375,6 +375,26 @@ def test_a_long_route_diagram_keeps_within_80_columns(tmp_path):
     assert rows[2].strip() == "└ U12 ─2 cm─ TP1"
 
 
+def test_route_chart_captions_say_where_and_claim_no_resistor_the_line_lacks(tmp_path):
+    # a route without a series resistor: the waveforms' caption read "each receiver at
+    # its own point of the route, with the line's series resistor", and the edge chart's
+    # operating point was "at the far end", which a route's is not (its slowest receiver)
+    pytest.importorskip("altair")
+    from pinlib.present import review
+
+    design, _ = _check(_flight_design(), tmp_path)
+    built = review.build_review(design, check_design(design))
+    charts = [c for c in built.all_charts() if c.kind in ("waveforms", "edge-vs-load")]
+    assert {c.kind for c in charts} == {"waveforms", "edge-vs-load"}
+    for c in charts:
+        assert "series resistor" not in c.caption, c.caption
+        assert "far end" not in c.caption, c.caption
+        assert ". each" not in c.caption and ". rise" not in c.caption  # sentences
+    edges = [c for c in charts if c.kind == "edge-vs-load"]
+    assert all("at the slowest receiver's own point of the route" in c.caption
+               for c in edges)
+
+
 def test_json_names_each_receiver(capsys):
     main(["check", str(ROUTE_DESIGN), "--json"])
     data = json.loads(capsys.readouterr().out)
