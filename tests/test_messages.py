@@ -1651,6 +1651,13 @@ def _(env):
     return _fails(lambda e: e.design(bus), env)
 
 
+@case("ROUTE_DEVICE_OF_OTHER_BUS")
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS + _routed(
+        '{ from = "U1", to = "U7", length = "3 cm", geometry = "g" }, '
+        '{ from = "U7", to = "U2", length = "3 cm", geometry = "g" }')), env)
+
+
 @case("TOO_MANY_SECTIONS")
 def _(env):
     stretch = '{ length = "1 mm", geometry = "g" }'

@@ -116,6 +116,37 @@ def test_an_empty_route_is_named_as_such(tmp_path):
     assert "at least one stretch" in err.expected
 
 
+def test_a_point_naming_a_device_of_another_bus_is_refused(tmp_path):
+    # U9 is wired to an I2C bus of the design and named on the SPI route without being
+    # listed on the SPI bus: read as a junction it left the chip off the line and the
+    # design passed; now the point is named, with the bus it sits on
+    i2c = """
+[[bus]]
+id = "sensors"
+protocol = "i2c"
+supply = "3.3 V"
+trace = { length = "5 cm", geometry = "g" }
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U9", part = "eeprom-i2c" },
+]
+"""
+    path = _design(tmp_path, _stretch("U1", "U2"), _stretch("U2", "U3"),
+                   _stretch("U3", "U9"))
+    path.write_text(path.read_text(encoding="utf-8") + i2c, encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    err = info.value
+    assert err.problem == M.ROUTE_DEVICE_OF_OTHER_BUS
+    assert err.field == "bus[0].lines.sclk.route[2].to"
+    assert err.line == 23 and err.value == "U9"
+    assert "bus sensors" in str(err)
+    # a junction named like no device of the design stays an open stub
+    ok = _design(tmp_path, _stretch("U1", "U2"), _stretch("U2", "U3"), _stretch("U3", "TP9"))
+    ok.write_text(ok.read_text(encoding="utf-8") + i2c, encoding="utf-8")
+    assert len(load_design(ok).buses[0].lines["sclk"].route) == 3
+
+
 def test_route_and_a_stretch_together_are_refused(tmp_path):
     path = tmp_path / "d.toml"
     path.write_text(HEAD + 'lines.sclk = { length = "3 cm", route = [' + _stretch("U1", "U2")

@@ -248,6 +248,7 @@ ROUTE_CLOSES_LOOP = "this stretch closes a loop in the route: its two points are
 ROUTE_NOT_CONNECTED = "this stretch joins nothing of the rest of the route"
 ROUTE_MISSES_DEVICE = "a device on the line is at no point of its route"
 ROUTE_DEVICE_NOT_ON_LINE = "the point names a device of the bus that is not on this line"
+ROUTE_DEVICE_OF_OTHER_BUS = "the point names a device of another bus, not of this one"
 
 # ---------------------------------------------------------------- pinlib/cli/commands/
 NO_FOLDER_FOR_NEW_PART = "no folder to write the new part into"
