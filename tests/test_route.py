@@ -312,6 +312,33 @@ def test_candidates_name_the_receiver_of_a_line_check_that_sets_the_worst(tmp_pa
         assert f"{wc['line']} {check_label(wc['id'])} {wc['subject']}" in text
 
 
+def test_an_overshoot_figure_at_a_pin_no_check_covers_is_explained(tmp_path):
+    # CIPO U1 -2 cm- U2 -13 cm- U3: the line's overshoot figure is the worst at any pin,
+    # here a peripheral's CIPO pin while the other drives, which no check covers (the
+    # controller alone receives); the line said a number no check or device explained
+    from pinlib.core.quantity import format_si
+
+    _, bus = _check(HEAD + """lines.cipo = { route = [
+  { from = "U1", to = "U2", length = "2 cm", geometry = "g" },
+  { from = "U2", to = "U3", length = "13 cm", geometry = "g" },
+] }
+lines.sclk = { route = [
+  { from = "U1", to = "U2", length = "2 cm", geometry = "g" },
+  { from = "U2", to = "U3", length = "13 cm", geometry = "g" },
+] }
+""", tmp_path)
+    cipo = _line(bus, "cipo")
+    for name in ("overshoot", "undershoot"):
+        figure = cipo.figures[name].value
+        checked = max(c.value for c in cipo.checks if c.id == name)
+        assert figure > checked  # the solver's numbers for this invented route
+        note = next(n for n in cipo.notes if f"{name} {format_si(figure, 'V')}" in n)
+        assert "no check covers" in note and format_si(checked, "V") in note
+        assert ("U2.cipo while U3 drives" in note) or ("U3.cipo while U2 drives" in note)
+    # a line whose every loaded pin receives it (SCLK) has no such note
+    assert not any("no check covers" in n for n in _line(bus, "sclk").notes)
+
+
 def test_cipo_each_peripheral_drives_from_its_own_point(tmp_path):
     _, bus = _check(_flight_design(), tmp_path)
     la = bus.workings.lines["cipo"]

@@ -194,3 +194,30 @@ def _figures_of(cases: dict, receivers=()) -> dict:
         under.append(float(np.max(si["fall"].extremes()[1][others])) + si["fall"].v_to)
     return {"edge_rise_time": max(rise_t), "edge_fall_time": max(fall_t),
             "overshoot": max(over), "undershoot": max(under)}
+
+
+def idle_pin_extremes(cases: dict, loads=(), receivers=()) -> list[tuple]:
+    """On a route, the line's overshoot or undershoot figure (the worst at any pin's
+    point) where it lies at a pin that does not receive the line (on CIPO the pin of a
+    peripheral while another drives), beyond the worst at the receivers, which the
+    checks cover: ``(figure, value, pin label, driver ref, worst at a receiver)``. [1, V]
+    """
+    if any(c.points is None for c in cases.values()):
+        return []
+    rx = {r.ref for r in receivers}
+    label = {p.ref: p.label for p in loads}
+    out = []
+    for name, edge, k in (("overshoot", "rise", 0), ("undershoot", "fall", 1)):
+        worst, at_rx = None, -math.inf
+        for c in cases.values():
+            wave = (c.points if c.fast_points is None else c.fast_points)[edge]
+            ext = wave.extremes()[k]
+            for ref in c.load_refs:
+                v = float(ext[c.net.node(ref)]) + (wave.v_to if k else -wave.v_to)
+                if ref in rx:
+                    at_rx = max(at_rx, v)
+                elif worst is None or v > worst[0]:
+                    worst = (v, label.get(ref, ref), c.driver.ref)
+        if worst is not None and worst[0] > at_rx and worst[0] > 0:
+            out.append((name, *worst, at_rx))
+    return out

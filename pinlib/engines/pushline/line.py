@@ -12,7 +12,13 @@ from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import dotted
 from pinlib.core.valueclass import value_class
 from pinlib.engines import memo
-from pinlib.engines.pushline.analysis import LineAnalysis, _figures_of, _fmt, _others
+from pinlib.engines.pushline.analysis import (
+    LineAnalysis,
+    _figures_of,
+    _fmt,
+    _others,
+    idle_pin_extremes,
+)
 from pinlib.engines.pushline.drive import _driver_model, _open_drain_model, _pullups
 from pinlib.engines.pushline.pins import Endpoint
 from pinlib.engines.pushline.rules import (
@@ -327,12 +333,30 @@ def _add_figures(a: LineAnalysis, res: LineResult) -> None:
     res.figure("series_resistor", a.rs, "Ω")
     res.figure("overshoot", figs["overshoot"], "V")
     res.figure("undershoot", figs["undershoot"], "V")
+    _idle_pin_notes(a, res)
     res.figure("transmission_line", bool(a.long), "")
     used = any(c.distributed for c in a.cases.values())
     res.figure("model", "distributed" if used else "lumped", "")
     if not a.long:
         res.notes.append(("distributed" if used else "lumped") + f" model: {LUMPED_RULE}")
     res.figure("delay_to_edge_ratio", a.ratio, "")
+
+
+def _idle_pin_notes(a: LineAnalysis, res: LineResult) -> None:
+    """A note for each pin where the line's overshoot or undershoot figure lies that no
+    check covers (:func:`~pinlib.engines.pushline.analysis.idle_pin_extremes`)."""
+    by_place: dict[tuple, list] = {}
+    for name, v, pin, driver, at_rx in idle_pin_extremes(a.cases, a.loads, a.receivers):
+        by_place.setdefault((pin, driver), []).append((name, v, at_rx))
+    for (pin, driver), got in by_place.items():
+        what = " and ".join(f"{name} {_fmt(v, 'V')}" for name, v, _ in got)
+        them = "them" if len(got) > 1 else "it"
+        rx = " and ".join(f"{_fmt(r, 'V')}" for _, _, r in got)
+        res.notes.append(f"{what} (the line's {'figures' if len(got) > 1 else 'figure'}, "
+                         f"the worst at any pin) at {pin} while {driver} drives: a pin "
+                         f"that does not receive {a.signal}, so no check covers {them} "
+                         f"(compare with that pin's own rating); the worst at a receiver: "
+                         f"{rx}")
 
 
 def _route_net(route, stretches):
