@@ -208,7 +208,7 @@ def idle_pin_extremes(cases: dict, loads=(), receivers=()) -> list[tuple]:
     label = {p.ref: p.label for p in loads}
     out = []
     for name, edge, k in (("overshoot", "rise", 0), ("undershoot", "fall", 1)):
-        worst, at_rx = None, -math.inf
+        idle, at_rx = [], -math.inf
         for c in cases.values():
             wave = (c.points if c.fast_points is None else c.fast_points)[edge]
             ext = wave.extremes()[k]
@@ -216,8 +216,12 @@ def idle_pin_extremes(cases: dict, loads=(), receivers=()) -> list[tuple]:
                 v = float(ext[c.net.node(ref)]) + (wave.v_to if k else -wave.v_to)
                 if ref in rx:
                     at_rx = max(at_rx, v)
-                elif worst is None or v > worst[0]:
-                    worst = (v, label.get(ref, ref), c.driver.ref)
-        if worst is not None and worst[0] > at_rx and worst[0] > 0:
-            out.append((name, *worst, at_rx))
+                else:
+                    idle.append((v, label.get(ref, ref), c.driver.ref))
+        top = max((v for v, _, _ in idle), default=-math.inf)
+        if top > at_rx and top > 0:
+            # the first of the pins at the worst, to the solver's last bits (twin pins of
+            # a symmetric route tie; which of them is named does not follow rounding)
+            _, pin, driver = next(x for x in idle if x[0] >= top - 1e-9 * top)
+            out.append((name, top, pin, driver, at_rx))
     return out
