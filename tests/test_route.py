@@ -400,6 +400,30 @@ lines.sclk = { length = "3 cm", geometry = "g" }
     assert c.workings.lines["cipo"].delay == pytest.approx(25 / 15 * want, rel=1e-9)
 
 
+def test_extra_capacitance_sits_far_from_the_controller_however_the_route_is_written(
+        tmp_path):
+    # one stretch U1 -> U3 written both ways: the line's extra capacitance went to the
+    # point farthest from the route's first point, so written U3 -> U1 it sat at the
+    # driver and the same board gave another edge; now both are the simple form's
+    def line(way, extra='extra_capacitance = "20 pF", '):
+        a, b = way
+        return (f'lines.sclk = {{ {extra}route = [{{ from = "{a}", to = "{b}", '
+                'length = "15 cm", geometry = "g" }] }\n')
+
+    two = HEAD.replace('  { ref = "U3", part = "nor-flash-spi" },\n', "")
+    _, fwd = _check(two + line(("U1", "U2")), tmp_path)
+    _, rev = _check(two + line(("U2", "U1")), tmp_path)
+    _, simple = _check(two + 'lines.sclk = { extra_capacitance = "20 pF", length = "15 cm", '
+                       'geometry = "g" }\n', tmp_path)
+    want = _line(simple, "sclk").figures
+    for bus in (fwd, rev):
+        got = _line(bus, "sclk").figures
+        for name in ("edge_rise_time", "edge_fall_time"):
+            # two solvers (the chain and the tree) of the same lossless-line model
+            assert got[name].value == pytest.approx(want[name].value, rel=2e-3), name
+        assert got["overshoot"].value == pytest.approx(want["overshoot"].value, abs=0.01)
+
+
 def test_route_test_design_checks_and_reports(tmp_path, capsys):
     code = main(["check", str(ROUTE_DESIGN), "--detail"])
     out = capsys.readouterr().out

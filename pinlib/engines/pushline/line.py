@@ -190,7 +190,8 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
     series resistor and the final cases, checks, figures."""
     notes = res.notes
     stretches = line_stretches(line)
-    net = _route_net(line.route, stretches) if line.route else None
+    anchor = next((p.ref for p in loads if p.device.is_controller), None)
+    net = _route_net(line.route, stretches, anchor) if line.route else None
     a = LineAnalysis(signal, line, stretches, list(drivers), list(loads), list(receivers),
                      result=res, net=net)
     if not a.drivers:
@@ -359,9 +360,17 @@ def _idle_pin_notes(a: LineAnalysis, res: LineResult) -> None:
                          f"{rx}")
 
 
-def _route_net(route, stretches):
+def _route_net(route, stretches, anchor: str | None = None):
     """:func:`pinlib.engines.pushline.routes.route_net`, imported by the first routed
-    line (a design of point-to-point lines does without the tree solver's set-up)."""
-    from pinlib.engines.pushline.routes import route_net
+    line (a design of point-to-point lines does without the tree solver's set-up), with
+    its far point (where the line's ``extra_capacitance`` sits) the point farthest in
+    delay from ``anchor``, the bus's controller, when it is on the line: the same
+    whichever way the route is written, and the far end of the simple form from the
+    controller.  Without one, the farthest from the route's first point."""
+    from pinlib.engines.pushline.routes import RouteNet, route_net
 
-    return route_net(route, stretches)
+    net = route_net(route, stretches)
+    if anchor is None or anchor not in net.names:
+        return net
+    d = net.delays_from(net.node(anchor))
+    return RouteNet(net.names, net.sections, max(range(len(d)), key=d.__getitem__))
