@@ -314,8 +314,8 @@ def test_candidates_name_the_receiver_of_a_line_check_that_sets_the_worst(tmp_pa
 
 def test_an_overshoot_figure_at_a_pin_no_check_covers_is_explained(tmp_path):
     # CIPO U1 -2 cm- U2 -13 cm- U3: the line's overshoot figure is the worst at any pin,
-    # here a peripheral's CIPO pin while the other drives, which no check covers (the
-    # controller alone receives); the line said a number no check or device explained
+    # here a peripheral's CIPO pin while the other drives, which no check covers (its
+    # part states no abs_max there); the line said a number no check or device explained
     from pinlib.core.quantity import format_si
 
     _, bus = _check(HEAD + """lines.cipo = { route = [
@@ -335,8 +335,23 @@ lines.sclk = { route = [
         note = next(n for n in cipo.notes if f"{name} {format_si(figure, 'V')}" in n)
         assert "no check covers" in note and format_si(checked, "V") in note
         assert ("U2.cipo while U3 drives" in note) or ("U3.cipo while U2 drives" in note)
-    # a line whose every loaded pin receives it (SCLK) has no such note
+    # a line whose every loaded pin has a check (SCLK: each input's abs_max) has none
     assert not any("no check covers" in n for n in _line(bus, "sclk").notes)
+    # a pin with an abs_max at that point (an ESD array beside U3) is checked there: the
+    # figure is that check's value, and no note
+    last = '  { ref = "U3", part = "nor-flash-spi" },\n'
+    head = HEAD.replace(last, last + '  { ref = "D1", part = "esd-diode-array-low-cap" },\n')
+    _, esd = _check(head + """lines.cipo = { route = [
+  { from = "U1", to = "U2", length = "2 cm", geometry = "g" },
+  { from = "U2", to = "U3", length = "13 cm", geometry = "g" },
+  { from = "U3", to = "D1", length = "0 cm", capacitance = "1 pF/cm" },
+] }
+lines.sclk = { length = "3 cm", geometry = "g" }
+""", tmp_path)
+    cipo = _line(esd, "cipo")
+    d1 = {c.id: c for c in cipo.checks if c.subject == "D1"}
+    assert cipo.figures["overshoot"].value == pytest.approx(d1["overshoot"].value, rel=1e-12)
+    assert not any("no check covers" in n for n in cipo.notes)
 
 
 def test_cipo_each_peripheral_drives_from_its_own_point(tmp_path):

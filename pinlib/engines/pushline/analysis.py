@@ -196,32 +196,34 @@ def _figures_of(cases: dict, receivers=()) -> dict:
             "overshoot": max(over), "undershoot": max(under)}
 
 
-def idle_pin_extremes(cases: dict, loads=(), receivers=()) -> list[tuple]:
+def idle_pin_extremes(cases: dict, loads=()) -> list[tuple]:
     """On a route, the line's overshoot or undershoot figure (the worst at any pin's
-    point) where it lies at a pin that does not receive the line (on CIPO the pin of a
-    peripheral while another drives), beyond the worst at the receivers, which the
-    checks cover: ``(figure, value, pin label, driver ref, worst at a receiver)``. [1, V]
+    point) where it lies at a pin that has no check of it, its part stating no
+    ``abs_max`` for the pin (on CIPO often a peripheral's own CIPO pin while another
+    drives), beyond the worst at the pins that have one:
+    ``(figure, value, pin label, driver ref, worst at a checked pin or None)``. [1, V]
     """
     if any(c.points is None for c in cases.values()):
         return []
-    rx = {r.ref for r in receivers}
+    checked = {p.ref for p in loads if p.level("abs_max") is not None}
     label = {p.ref: p.label for p in loads}
     out = []
     for name, edge, k in (("overshoot", "rise", 0), ("undershoot", "fall", 1)):
-        idle, at_rx = [], -math.inf
+        idle, at_checked = [], -math.inf
         for c in cases.values():
             wave = (c.points if c.fast_points is None else c.fast_points)[edge]
             ext = wave.extremes()[k]
             for ref in c.load_refs:
                 v = float(ext[c.net.node(ref)]) + (wave.v_to if k else -wave.v_to)
-                if ref in rx:
-                    at_rx = max(at_rx, v)
+                if ref in checked:
+                    at_checked = max(at_checked, v)
                 else:
                     idle.append((v, label.get(ref, ref), c.driver.ref))
         top = max((v for v, _, _ in idle), default=-math.inf)
-        if top > at_rx and top > 0:
+        if top > at_checked and top > 0:
             # the first of the pins at the worst, to the solver's last bits (twin pins of
             # a symmetric route tie; which of them is named does not follow rounding)
             _, pin, driver = next(x for x in idle if x[0] >= top - 1e-9 * top)
-            out.append((name, top, pin, driver, at_rx))
+            out.append((name, top, pin, driver,
+                        at_checked if math.isfinite(at_checked) else None))
     return out

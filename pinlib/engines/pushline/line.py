@@ -347,17 +347,18 @@ def _idle_pin_notes(a: LineAnalysis, res: LineResult) -> None:
     """A note for each pin where the line's overshoot or undershoot figure lies that no
     check covers (:func:`~pinlib.engines.pushline.analysis.idle_pin_extremes`)."""
     by_place: dict[tuple, list] = {}
-    for name, v, pin, driver, at_rx in idle_pin_extremes(a.cases, a.loads, a.receivers):
-        by_place.setdefault((pin, driver), []).append((name, v, at_rx))
+    for name, v, pin, driver, at_checked in idle_pin_extremes(a.cases, a.loads):
+        by_place.setdefault((pin, driver), []).append((name, v, at_checked))
     for (pin, driver), got in by_place.items():
         what = " and ".join(f"{name} {_fmt(v, 'V')}" for name, v, _ in got)
-        them = "them" if len(got) > 1 else "it"
-        rx = " and ".join(f"{_fmt(r, 'V')}" for _, _, r in got)
-        res.notes.append(f"{what} (the line's {'figures' if len(got) > 1 else 'figure'}, "
-                         f"the worst at any pin) at {pin} while {driver} drives: a pin "
-                         f"that does not receive {a.signal}, so no check covers {them} "
-                         f"(compare with that pin's own rating); the worst at a receiver: "
-                         f"{rx}")
+        many = len(got) > 1
+        known = [r for _, _, r in got if r is not None]
+        rest = ("; the worst at a pin with a check: "
+                + " and ".join(_fmt(r, "V") for r in known)) if len(known) == len(got) else ""
+        res.notes.append(f"{what} (the line's {'figures' if many else 'figure'}, the worst "
+                         f"at any pin) at {pin} while {driver} drives: its part states no "
+                         f"abs_max for that pin, so no check covers {'them' if many else 'it'}"
+                         f"{rest}")
 
 
 def _route_net(route, stretches, anchor: str | None = None):
