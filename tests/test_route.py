@@ -354,6 +354,27 @@ lines.sclk = { length = "3 cm", geometry = "g" }
     assert not any("no check covers" in n for n in cipo.notes)
 
 
+def test_an_overshoot_on_cipo_names_the_peripheral_whose_edge_it_is(tmp_path):
+    # the controller's overshoot on CIPO is the worst over the peripherals' edges; the
+    # message said where, not whose, so not where a series resistor would go
+    _, bus = _check(HEAD + """lines.cipo = { route = [
+  { from = "U1", to = "U2", length = "2 cm", geometry = "g" },
+  { from = "U2", to = "U3", length = "13 cm", geometry = "g" },
+] }
+lines.sclk = { length = "3 cm", geometry = "g" }
+""", tmp_path)
+    la = bus.workings.lines["cipo"]
+    checks = {c.id: c for c in _line(bus, "cipo").checks if c.subject == "U1"}
+    for check_id, edge, attr in (("overshoot", "rise", "overshoot"),
+                                 ("undershoot", "fall", "undershoot")):
+        # the engine's own waveforms at U1, one per driver
+        worst = max(la.cases, key=lambda r: getattr(la.cases[r].si_wave_at("U1", edge), attr))
+        assert f"at U1.cipo while {worst} drives" in checks[check_id].message
+    # one driver (SCLK): nothing to tell apart
+    assert not any("drives" in c.message for c in _line(bus, "sclk").checks
+                   if c.id == "overshoot")
+
+
 def test_cipo_each_peripheral_drives_from_its_own_point(tmp_path):
     _, bus = _check(_flight_design(), tmp_path)
     la = bus.workings.lines["cipo"]

@@ -85,18 +85,26 @@ def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
     dip = float(dips[own].max())
     low_allowed = min(allowed, UNDERSHOOT_DEFAULT)
     corner = " (fast corner)" if fast[own].any() else ""
+    # with several drivers (CIPO's peripherals) the one whose edge it is: where a series
+    # resistor would go
+    mask = np.ones(len(refs), dtype=bool) if isinstance(own, slice) else own
+    mine = [r for r, keep in zip(refs, mask, strict=True) if keep]
+    by_peak = by_dip = ""
+    if len(mine) > 1:
+        by_peak = f" while {mine[int(np.argmax(peaks[own]))]} drives"
+        by_dip = f" while {mine[int(np.argmax(dips[own]))]} drives"
     return [
         check_max(
             "overshoot", above, allowed, "V", p.source("abs_max"),
-            f"peak {_fmt(peak, 'V')} at {p.label} against its abs_max {_fmt(abs_max, 'V')} "
-            f"at {_fmt(p.vdd, 'V')}: {_fmt(above, 'V')} above its supply, "
-            f"{_fmt(allowed, 'V')} allowed{corner}", warn_margin=warn, subject=p.ref,
+            f"peak {_fmt(peak, 'V')} at {p.label}{by_peak} against its abs_max "
+            f"{_fmt(abs_max, 'V')} at {_fmt(p.vdd, 'V')}: {_fmt(above, 'V')} above its "
+            f"supply, {_fmt(allowed, 'V')} allowed{corner}", warn_margin=warn, subject=p.ref,
             details={"peak": peak, "abs_max": abs_max, "supply": p.vdd}),
         # the part format records the upper rating only: the low limit is inferred
         rule_of_thumb(check_max(
             "undershoot", dip, low_allowed, "V", f"{UNDERSHOOT_RULE}; {p.source('abs_max')}",
-            f"dip to {_fmt(-dip, 'V')} at {p.label}; {_fmt(low_allowed, 'V')} below ground "
-            f"allowed{corner}", warn_margin=warn, subject=p.ref)),
+            f"dip to {_fmt(-dip, 'V')} at {p.label}{by_dip}; {_fmt(low_allowed, 'V')} below "
+            f"ground allowed{corner}", warn_margin=warn, subject=p.ref)),
     ]
 
 
