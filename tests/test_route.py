@@ -375,6 +375,28 @@ lines.sclk = { length = "3 cm", geometry = "g" }
                    if c.id == "overshoot")
 
 
+def test_ringing_on_cipo_names_the_peripheral_whose_edges_ring(tmp_path):
+    # "fix: add or increase a series resistor at the driver" on a line of two drivers
+    # left the engineer to guess which one
+    _, bus = _check(HEAD + """lines.cipo = { route = [
+  { from = "U1", to = "U2", length = "2 cm", geometry = "g" },
+  { from = "U2", to = "U3", length = "13 cm", geometry = "g" },
+] }
+lines.sclk = { length = "3 cm", geometry = "g" }
+""", tmp_path)
+    la = bus.workings.lines["cipo"]
+    ring = next(c for c in _line(bus, "cipo").checks if c.id == "ringing")
+    assert ring.value > 0  # the solver's: this invented route rings at the controller
+    # the engine's own waveforms at U1: the re-crossings of each driver's two edges
+    ctl = la.receivers[0]
+    v_il, v_ih = ctl.level("v_il"), ctl.level("v_ih")
+    per = {r: sum(int(c.si_wave_at("U1", e).recrossings(v_il, v_ih).entry)
+                  for e in ("rise", "fall")) for r, c in la.cases.items()}
+    worst = max(per, key=per.get)
+    assert f"while {worst} drives" in ring.message
+    assert ring.fix.endswith(f"at the driver ({worst})")
+
+
 def test_cipo_each_peripheral_drives_from_its_own_point(tmp_path):
     _, bus = _check(_flight_design(), tmp_path)
     la = bus.workings.lines["cipo"]

@@ -119,6 +119,7 @@ def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
     """Re-crossings of VIL/VIH at one receiver over every other driver's edges (the fast
     corner's, where a driver has one)."""
     counts = {}
+    by_driver: dict[str, int] = {}
     for ref, c in cases.items():
         if ref == rx.ref:
             continue
@@ -126,7 +127,11 @@ def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
             got = c.si_wave_at(rx.ref, edge).recrossings(v_il, v_ih)
             prev = counts.get(edge, (0, 0))
             counts[edge] = (max(prev[0], int(got.entry)), max(prev[1], int(got.opposite)))
+            by_driver[ref] = by_driver.get(ref, 0) + int(got.entry)
     total = sum(e for e, _ in counts.values())
+    # with several drivers (CIPO's peripherals) the one whose edges ring most: where the
+    # series resistor goes
+    whose = max(by_driver, key=by_driver.get) if len(by_driver) > 1 and total else None
     if total == 0:
         status = "pass"
     else:
@@ -138,11 +143,13 @@ def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
         (f"no re-crossing of VIL {_fmt(v_il, 'V')} / VIH {_fmt(v_ih, 'V')} at {rx.label}"
          if total == 0 else
          f"{total} re-crossing(s) of VIL {_fmt(v_il, 'V')} / VIH {_fmt(v_ih, 'V')} at "
-         f"{rx.label} after the first crossing: risk of {what}") + corner,
+         f"{rx.label} after the first crossing"
+         + (f" while {whose} drives" if whose else "") + f": risk of {what}") + corner,
         subject=rx.ref,
         details={f"{edge}_{kind}": n for edge, (e, o) in counts.items()
                  for kind, n in (("recrossings", e), ("full_reversals", o))},
-        fix=None if total == 0 else "add or increase a series resistor at the driver")
+        fix=None if total == 0 else "add or increase a series resistor at the driver"
+                                    + (f" ({whose})" if whose else ""))
 
 
 def _driver_levels(d: Endpoint, c) -> tuple[float, str, float, str]:
