@@ -543,6 +543,26 @@ def test_the_edge_rule_clock_note_of_a_routed_bus_speaks_of_receivers(tmp_path):
     assert "far-end" not in note
 
 
+def test_a_route_diagram_puts_each_branch_right_below_the_row_it_leaves(tmp_path):
+    # U1 -> A -> B -> U2 with a stub B -> TP, and A -> C -> U3 with C -> U4 beside: the
+    # stub at B was drawn after A's whole branch, under C's row, as if it left that row
+    from pinlib.present.review.text import route_diagram
+
+    last = '  { ref = "U3", part = "nor-flash-spi" },\n'
+    head = HEAD.replace(last, last + '  { ref = "U4", part = "nor-flash-spi" },\n')
+    path = _design_text(tmp_path, head, _stretch("U1", "A"), _stretch("A", "B", "3 cm"),
+                        _stretch("B", "U2", "1 cm"), _stretch("A", "C", "4 cm"),
+                        _stretch("C", "U3", "5 mm"), _stretch("C", "U4", "7 cm"),
+                        _stretch("B", "TP", "1.5 mm"))
+    rows = route_diagram(load_design(path).buses[0].lines["sclk"])
+    assert rows == [
+        "U1 ─2 cm─ A ─3 cm─ B ─1 cm─ U2",
+        "                   └ B ─1.5 mm─ TP",
+        "          └ A ─4 cm─ C ─5 mm─ U3",
+        "                     └ C ─7 cm─ U4",
+    ]
+
+
 def test_json_names_each_receiver(capsys):
     main(["check", str(ROUTE_DESIGN), "--json"])
     data = json.loads(capsys.readouterr().out)

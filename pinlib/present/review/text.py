@@ -92,8 +92,9 @@ def route_diagram(line, width: int = DIAGRAM_WIDTH) -> list[str]:
     """A routed line as text, one row per path: the route's first point, then at each
     point its first stretch onwards on the same row (``U1 ─2 cm─ T1 ─13 cm─ U3``), every
     other stretch from a point on a row of its own below, indented to that point
-    (``└ T1 ─1 cm─ U2``).  A path wider than ``width`` goes on in the next row from its
-    last point (``… U7 ─2 cm─ U8``).  Empty for a line without a route."""
+    (``└ T1 ─1 cm─ U2``), the branches farthest along the row first.  A path wider than
+    ``width`` goes on in the next row from its last point (``… U7 ─2 cm─ U8``).  Empty
+    for a line without a route."""
     points = list(getattr(line, "route", ()) or ())
     if not points:
         return []
@@ -129,7 +130,10 @@ def route_diagram(line, width: int = DIAGRAM_WIDTH) -> list[str]:
             row += step
             point = nxt
         rows.append(row)
-        starts[0:0] = branches  # a row's branches follow it, in the order they leave it
+        # a row's branches follow it, the farthest along first (each right below the
+        # row it leaves, not below another branch's rows), those of one point in order
+        branches.sort(key=lambda b: -(len(b[1]) - len(b[1].lstrip(" "))))
+        starts[0:0] = branches
     return rows
 
 
