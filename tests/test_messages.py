@@ -1619,6 +1619,13 @@ def _(env):
     return _fails(lambda e: e.design(_routed("")), env)
 
 
+@case("POINT_NAME_CONTROL")
+def _(env):
+    return _fails(lambda e: e.design(_routed(
+        '{ from = "U1", to = "J\\n1", length = "3 cm", geometry = "g" }, '
+        '{ from = "J\\n1", to = "U7", length = "3 cm", geometry = "g" }')), env)
+
+
 @case("ROUTE_CLOSES_LOOP")
 def _(env):
     return _fails(lambda e: e.design(_routed(

@@ -147,6 +147,18 @@ devices = [
     assert len(load_design(ok).buses[0].lines["sclk"].route) == 3
 
 
+def test_a_point_named_with_a_line_break_is_refused(tmp_path):
+    # "a\nb" was taken as a junction's name and broke the report's route diagram in two
+    path = _design(tmp_path, _stretch("U1", "U2"), _stretch("U2", "U3"),
+                   _stretch("U3", "a\\nb"))
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    err = info.value
+    assert err.problem == M.POINT_NAME_CONTROL
+    assert err.field == "bus[0].lines.sclk.route[2].to" and err.line == 23
+    assert err.value == "a\nb"
+
+
 def test_route_and_a_stretch_together_are_refused(tmp_path):
     path = tmp_path / "d.toml"
     path.write_text(HEAD + 'lines.sclk = { length = "3 cm", route = [' + _stretch("U1", "U2")

@@ -244,6 +244,7 @@ ROUTE_OR_STRETCH = "give either a route or a stretch (length, sections...), not 
 ROUTE_ON_OPEN_DRAIN = "an open-drain bus's trace takes no route"
 TOO_MANY_ROUTE_STRETCHES = "too many stretches in one route"
 ROUTE_EMPTY = "a route with no stretch"
+POINT_NAME_CONTROL = "a route point named with a line break or a control character"
 ROUTE_CLOSES_LOOP = "this stretch closes a loop in the route: its two points are already joined"
 ROUTE_NOT_CONNECTED = "this stretch joins nothing of the rest of the route"
 ROUTE_MISSES_DEVICE = "a device on the line is at no point of its route"

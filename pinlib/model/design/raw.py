@@ -122,7 +122,16 @@ class RawSection(Record):
     part: str | None = None           # a cable class from the library
 
 
-PointName = Annotated[str, Rule(min_length=1, max_length=40)]
+def _one_line(raw, name=None):
+    """A route point's name as written; one with a line break or another control
+    character is refused (it would break the report's route diagram)."""
+    if isinstance(raw, str) and any(ord(ch) < 32 or ord(ch) == 127 for ch in raw):
+        raise DesignError(M.POINT_NAME_CONTROL, value=raw,
+                          expected="a name on one line, without control characters")
+    return raw
+
+
+PointName = Annotated[str, Convert(_one_line), Rule(min_length=1, max_length=40)]
 
 
 class RawRouteStretch(RawSection):
