@@ -418,6 +418,34 @@ def test_edge_vs_load_spec():
     assert note["encoding"]["text"]["field"] == "note"
 
 
+def test_edge_vs_load_writes_the_operating_point_where_it_fits():
+    # the values were always written on the cross's right: with the cross near the end
+    # of the load axis (a line loaded beyond the datasheet's loads, the common case) they
+    # ran past the plot's edge, and across a curve passing beside it
+    loads = np.array([0, 10, 20, 30, 40, 50]) * PICO
+    times = np.array([[0.5, 1.4, 2.3, 3.2, 4.1, 5.0],
+                      [0.4, 1.1, 1.8, 2.5, 3.2, 3.9]]) * NANO
+
+    def note(load, t):
+        chart = charts.edge_vs_load(loads, times, series=["rise", "fall"],
+                                    operating=(load, t))
+        return _layers(chart)[-1]["mark"]
+
+    # at 90 % of the axis, the curves above it: ending at the cross, below it
+    far = note(45 * PICO, 2.0 * NANO)
+    assert far["align"] in ("right", "center") and far.get("dx", 0) <= 0
+    assert far["baseline"] == "top" and far["dy"] > 0
+    # at 80 %, the curves above it over the label's width: centred below the cross
+    star = note(40 * PICO, 2.4 * NANO)
+    assert star["align"] == "center" and star["baseline"] == "top"
+    # in the middle of the axis, the curves above it: on its right, below it
+    mid = note(22 * PICO, 1.0 * NANO)
+    assert (mid["align"], mid["dx"], mid["baseline"]) == ("left", 9, "top")
+    # between the curves wherever it could go: on its right, level with it, as before
+    mid = note(25 * PICO, 2.3 * NANO)
+    assert (mid["align"], mid["dx"], mid["baseline"]) == ("left", 9, "middle")
+
+
 def test_edge_vs_load_log_axes_and_errors():
     loads = np.array([1, 10, 100]) * PICO
     chart = charts.edge_vs_load(loads, np.array([1.0, 2.0, 9.0]) * NANO, log_x=True,

@@ -1617,6 +1617,18 @@ def _(env):
     return _fails(lambda e: e.design(_routed(many)), env)
 
 
+@case("ROUTE_EMPTY")
+def _(env):
+    return _fails(lambda e: e.design(_routed("")), env)
+
+
+@case("POINT_NAME_CONTROL")
+def _(env):
+    return _fails(lambda e: e.design(_routed(
+        '{ from = "U1", to = "J\\n1", length = "3 cm", geometry = "g" }, '
+        '{ from = "J\\n1", to = "U7", length = "3 cm", geometry = "g" }')), env)
+
+
 @case("ROUTE_CLOSES_LOOP")
 def _(env):
     return _fails(lambda e: e.design(_routed(
@@ -1647,6 +1659,13 @@ def _(env):
                       '{ ref = "U7", part = "nor-flash-spi" },\n'
                       '  { ref = "U8", part = "dac-spi" },')
     return _fails(lambda e: e.design(bus), env)
+
+
+@case("ROUTE_DEVICE_OF_OTHER_BUS")
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS + _routed(
+        '{ from = "U1", to = "U7", length = "3 cm", geometry = "g" }, '
+        '{ from = "U7", to = "U2", length = "3 cm", geometry = "g" }')), env)
 
 
 @case("TOO_MANY_SECTIONS")

@@ -46,7 +46,11 @@ def _stretch(a, b, length="2 cm"):
 
 
 def _design(tmp_path, *stretches, sig="sclk"):
-    text = HEAD + f"lines.{sig} = {{ route = [\n  " + ",\n  ".join(stretches) + "\n] }\n"
+    return _design_text(tmp_path, HEAD, *stretches, sig=sig)
+
+
+def _design_text(tmp_path, head, *stretches, sig="sclk"):
+    text = head + f"lines.{sig} = {{ route = [\n  " + ",\n  ".join(stretches) + "\n] }\n"
     if sig != "sclk":
         text += 'lines.sclk = { length = "3 cm", geometry = "g" }\n'
     path = tmp_path / "d.toml"
@@ -99,6 +103,62 @@ def test_missing_device_is_named(tmp_path):
     assert "U3" in str(info.value)
 
 
+def test_an_empty_route_is_named_as_such(tmp_path):
+    # route = [] was read as no route at all, and the line blamed for its missing length
+    path = tmp_path / "d.toml"
+    path.write_text(HEAD + "lines.sclk = { route = [] }\n", encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    err = info.value
+    assert err.problem == M.ROUTE_EMPTY
+    assert err.field == "bus[0].lines.sclk.route"
+    assert err.line == HEAD.count("\n") + 1
+    assert "at least one stretch" in err.expected
+
+
+def test_a_point_naming_a_device_of_another_bus_is_refused(tmp_path):
+    # U9 is wired to an I2C bus of the design and named on the SPI route without being
+    # listed on the SPI bus: read as a junction it left the chip off the line and the
+    # design passed; now the point is named, with the bus it sits on
+    i2c = """
+[[bus]]
+id = "sensors"
+protocol = "i2c"
+supply = "3.3 V"
+trace = { length = "5 cm", geometry = "g" }
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U9", part = "eeprom-i2c" },
+]
+"""
+    path = _design(tmp_path, _stretch("U1", "U2"), _stretch("U2", "U3"),
+                   _stretch("U3", "U9"))
+    path.write_text(path.read_text(encoding="utf-8") + i2c, encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    err = info.value
+    assert err.problem == M.ROUTE_DEVICE_OF_OTHER_BUS
+    assert err.field == "bus[0].lines.sclk.route[2].to"
+    assert err.line == 23 and err.value == "U9"
+    assert "bus sensors" in str(err)
+    # a junction named like no device of the design stays an open stub
+    ok = _design(tmp_path, _stretch("U1", "U2"), _stretch("U2", "U3"), _stretch("U3", "TP9"))
+    ok.write_text(ok.read_text(encoding="utf-8") + i2c, encoding="utf-8")
+    assert len(load_design(ok).buses[0].lines["sclk"].route) == 3
+
+
+def test_a_point_named_with_a_line_break_is_refused(tmp_path):
+    # "a\nb" was taken as a junction's name and broke the report's route diagram in two
+    path = _design(tmp_path, _stretch("U1", "U2"), _stretch("U2", "U3"),
+                   _stretch("U3", "a\\nb"))
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    err = info.value
+    assert err.problem == M.POINT_NAME_CONTROL
+    assert err.field == "bus[0].lines.sclk.route[2].to" and err.line == 23
+    assert err.value == "a\nb"
+
+
 def test_route_and_a_stretch_together_are_refused(tmp_path):
     path = tmp_path / "d.toml"
     path.write_text(HEAD + 'lines.sclk = { length = "3 cm", route = [' + _stretch("U1", "U2")
@@ -122,6 +182,18 @@ def test_unknown_key_in_a_route_stretch_is_refused(tmp_path):
     with pytest.raises(DesignError) as info:
         load_design(_design(tmp_path, _stretch("U1", "U2"), bad))
     assert "route" in info.value.field and "stub" in info.value.field
+
+
+def test_a_misspelt_key_of_a_route_stretch_lists_the_keys_as_written(tmp_path):
+    # the keys a stretch takes are listed as the file spells them: "from", never the
+    # Python attribute behind it ("from_")
+    bad = '{ form = "U2", to = "U3", length = "2 cm", geometry = "g" }'
+    with pytest.raises(DesignError) as info:
+        load_design(_design(tmp_path, _stretch("U1", "U2"), bad))
+    err = info.value
+    assert err.field == "bus[0].lines.sclk.route[1].form"
+    assert "from_" not in err.message
+    assert "part, from, to" in err.message and err.message.endswith("closest: from")
 
 
 # ---------------------------------------------------------------- the engine on routes
@@ -235,6 +307,108 @@ def test_max_clock_follows_the_worst_device_and_names_it(tmp_path):
     assert got["U2"] == pytest.approx(got["U3"], rel=1e-9)
 
 
+def test_candidates_name_the_receiver_of_a_line_check_that_sets_the_worst(tmp_path):
+    # on a route each receiver has its own overshoot, edge and ringing: the ranking's
+    # "set by" names which one, as pinlib check does (it read "sclk Overshoot")
+    from pinlib.core.labels import check_label
+    from pinlib.studies.candidates import rank_candidates
+
+    design, _ = _check(_flight_design(), tmp_path)
+    ranking = rank_candidates(design, "U3")
+    text = ranking.format_text(width=None)
+    on_lines = [c.worst_check for c in ranking.candidates
+                if c.worst_check and c.worst_check.get("line")]
+    assert on_lines  # the 40 cm stub rings: line checks set the worst margins
+    for wc in on_lines:
+        assert wc["subject"]
+        assert f"{wc['line']} {check_label(wc['id'])} {wc['subject']}" in text
+
+
+def test_an_overshoot_figure_at_a_pin_no_check_covers_is_explained(tmp_path):
+    # CIPO U1 -2 cm- U2 -13 cm- U3: the line's overshoot figure is the worst at any pin,
+    # here a peripheral's CIPO pin while the other drives, which no check covers (its
+    # part states no abs_max there); the line said a number no check or device explained
+    from pinlib.core.quantity import format_si
+
+    _, bus = _check(HEAD + """lines.cipo = { route = [
+  { from = "U1", to = "U2", length = "2 cm", geometry = "g" },
+  { from = "U2", to = "U3", length = "13 cm", geometry = "g" },
+] }
+lines.sclk = { route = [
+  { from = "U1", to = "U2", length = "2 cm", geometry = "g" },
+  { from = "U2", to = "U3", length = "13 cm", geometry = "g" },
+] }
+""", tmp_path)
+    cipo = _line(bus, "cipo")
+    for name in ("overshoot", "undershoot"):
+        figure = cipo.figures[name].value
+        checked = max(c.value for c in cipo.checks if c.id == name)
+        assert figure > checked  # the solver's numbers for this invented route
+        note = next(n for n in cipo.notes if f"{name} {format_si(figure, 'V')}" in n)
+        assert "no check covers" in note and format_si(checked, "V") in note
+        assert ("U2.cipo while U3 drives" in note) or ("U3.cipo while U2 drives" in note)
+    # a line whose every loaded pin has a check (SCLK: each input's abs_max) has none
+    assert not any("no check covers" in n for n in _line(bus, "sclk").notes)
+    # a pin with an abs_max at that point (an ESD array beside U3) is checked there: the
+    # figure is that check's value, and no note
+    last = '  { ref = "U3", part = "nor-flash-spi" },\n'
+    head = HEAD.replace(last, last + '  { ref = "D1", part = "esd-diode-array-low-cap" },\n')
+    _, esd = _check(head + """lines.cipo = { route = [
+  { from = "U1", to = "U2", length = "2 cm", geometry = "g" },
+  { from = "U2", to = "U3", length = "13 cm", geometry = "g" },
+  { from = "U3", to = "D1", length = "0 cm", capacitance = "1 pF/cm" },
+] }
+lines.sclk = { length = "3 cm", geometry = "g" }
+""", tmp_path)
+    cipo = _line(esd, "cipo")
+    d1 = {c.id: c for c in cipo.checks if c.subject == "D1"}
+    assert cipo.figures["overshoot"].value == pytest.approx(d1["overshoot"].value, rel=1e-12)
+    assert not any("no check covers" in n for n in cipo.notes)
+
+
+def test_an_overshoot_on_cipo_names_the_peripheral_whose_edge_it_is(tmp_path):
+    # the controller's overshoot on CIPO is the worst over the peripherals' edges; the
+    # message said where, not whose, so not where a series resistor would go
+    _, bus = _check(HEAD + """lines.cipo = { route = [
+  { from = "U1", to = "U2", length = "2 cm", geometry = "g" },
+  { from = "U2", to = "U3", length = "13 cm", geometry = "g" },
+] }
+lines.sclk = { length = "3 cm", geometry = "g" }
+""", tmp_path)
+    la = bus.workings.lines["cipo"]
+    checks = {c.id: c for c in _line(bus, "cipo").checks if c.subject == "U1"}
+    for check_id, edge, attr in (("overshoot", "rise", "overshoot"),
+                                 ("undershoot", "fall", "undershoot")):
+        # the engine's own waveforms at U1, one per driver
+        worst = max(la.cases, key=lambda r: getattr(la.cases[r].si_wave_at("U1", edge), attr))
+        assert f"at U1.cipo while {worst} drives" in checks[check_id].message
+    # one driver (SCLK): nothing to tell apart
+    assert not any("drives" in c.message for c in _line(bus, "sclk").checks
+                   if c.id == "overshoot")
+
+
+def test_ringing_on_cipo_names_the_peripheral_whose_edges_ring(tmp_path):
+    # "fix: add or increase a series resistor at the driver" on a line of two drivers
+    # left the engineer to guess which one
+    _, bus = _check(HEAD + """lines.cipo = { route = [
+  { from = "U1", to = "U2", length = "2 cm", geometry = "g" },
+  { from = "U2", to = "U3", length = "13 cm", geometry = "g" },
+] }
+lines.sclk = { length = "3 cm", geometry = "g" }
+""", tmp_path)
+    la = bus.workings.lines["cipo"]
+    ring = next(c for c in _line(bus, "cipo").checks if c.id == "ringing")
+    assert ring.value > 0  # the solver's: this invented route rings at the controller
+    # the engine's own waveforms at U1: the re-crossings of each driver's two edges
+    ctl = la.receivers[0]
+    v_il, v_ih = ctl.level("v_il"), ctl.level("v_ih")
+    per = {r: sum(int(c.si_wave_at("U1", e).recrossings(v_il, v_ih).entry)
+                  for e in ("rise", "fall")) for r, c in la.cases.items()}
+    worst = max(per, key=per.get)
+    assert f"while {worst} drives" in ring.message
+    assert ring.fix.endswith(f"at the driver ({worst})")
+
+
 def test_cipo_each_peripheral_drives_from_its_own_point(tmp_path):
     _, bus = _check(_flight_design(), tmp_path)
     la = bus.workings.lines["cipo"]
@@ -266,6 +440,60 @@ def test_a_route_with_every_device_at_one_point_matches_the_simple_form(tmp_path
     assert fb["overshoot"].value == pytest.approx(fa["overshoot"].value, abs=0.01)
 
 
+def test_a_line_fed_from_its_middle_is_as_long_as_its_longer_arm(tmp_path):
+    # U2 -15 cm- U1 -10 cm- U3, the controller between them: its edge travels 15 cm at
+    # most (derived from the route), not the 25 cm from U2 to U3; the delay, the
+    # electrical length and the line-delay check follow the longer arm
+    routed = HEAD + """lines.sclk = { route = [
+  { from = "U2", to = "U1", length = "15 cm", geometry = "g" },
+  { from = "U1", to = "U3", length = "10 cm", geometry = "g" },
+] }
+"""
+    simple = HEAD + 'lines.sclk = { length = "15 cm", geometry = "g" }\n'
+    _, a = _check(routed, tmp_path)
+    _, b = _check(simple, tmp_path)
+    la, lb = a.workings.lines["sclk"], b.workings.lines["sclk"]
+    want = lb.delay
+    assert la.delay == pytest.approx(want, rel=1e-12)
+    assert _line(a, "sclk").figures["trace_delay"].value == pytest.approx(want, rel=1e-12)
+    check = next(c for c in _line(a, "sclk").checks if c.id == "line-delay")
+    assert check.value == pytest.approx(want, rel=1e-12)
+    assert la.ratio == pytest.approx(want / la.edge_alone, rel=1e-12)
+    # CIPO from the far peripheral: the whole way to the controller counts
+    cipo = HEAD + """lines.cipo = { route = [
+  { from = "U2", to = "U1", length = "15 cm", geometry = "g" },
+  { from = "U1", to = "U3", length = "10 cm", geometry = "g" },
+] }
+lines.sclk = { length = "3 cm", geometry = "g" }
+"""
+    _, c = _check(cipo, tmp_path)
+    assert c.workings.lines["cipo"].delay == pytest.approx(25 / 15 * want, rel=1e-9)
+
+
+def test_extra_capacitance_sits_far_from_the_controller_however_the_route_is_written(
+        tmp_path):
+    # one stretch U1 -> U3 written both ways: the line's extra capacitance went to the
+    # point farthest from the route's first point, so written U3 -> U1 it sat at the
+    # driver and the same board gave another edge; now both are the simple form's
+    def line(way, extra='extra_capacitance = "20 pF", '):
+        a, b = way
+        return (f'lines.sclk = {{ {extra}route = [{{ from = "{a}", to = "{b}", '
+                'length = "15 cm", geometry = "g" }] }\n')
+
+    two = HEAD.replace('  { ref = "U3", part = "nor-flash-spi" },\n', "")
+    _, fwd = _check(two + line(("U1", "U2")), tmp_path)
+    _, rev = _check(two + line(("U2", "U1")), tmp_path)
+    _, simple = _check(two + 'lines.sclk = { extra_capacitance = "20 pF", length = "15 cm", '
+                       'geometry = "g" }\n', tmp_path)
+    want = _line(simple, "sclk").figures
+    for bus in (fwd, rev):
+        got = _line(bus, "sclk").figures
+        for name in ("edge_rise_time", "edge_fall_time"):
+            # two solvers (the chain and the tree) of the same lossless-line model
+            assert got[name].value == pytest.approx(want[name].value, rel=2e-3), name
+        assert got["overshoot"].value == pytest.approx(want["overshoot"].value, abs=0.01)
+
+
 def test_route_test_design_checks_and_reports(tmp_path, capsys):
     code = main(["check", str(ROUTE_DESIGN), "--detail"])
     out = capsys.readouterr().out
@@ -275,6 +503,76 @@ def test_route_test_design_checks_and_reports(tmp_path, capsys):
     assert main(["report", str(ROUTE_DESIGN), "--html", str(html)]) == code  # as check
     text = html.read_text(encoding="utf-8")
     assert "U1 ─2 cm─ T1" in text  # the route drawn as text
+
+
+def test_a_long_route_diagram_keeps_within_80_columns(tmp_path):
+    # invented: a daisy chain of twelve peripherals 2.5 cm apart, a 150-character row
+    # when drawn on one; a branch off its far end too
+    from pinlib.present.review.text import route_diagram
+
+    devices = "".join(f'  {{ ref = "U{i}", part = "nor-flash-spi" }},\n' for i in range(4, 14))
+    last = '  { ref = "U3", part = "nor-flash-spi" },\n'
+    head = HEAD.replace(last, last + devices)
+    chain = [_stretch(f"U{i}", f"U{i + 1}", "2.5 cm") for i in range(1, 13)]
+    line = load_design(_design_text(tmp_path, head, *chain, _stretch("U12", "TP1")))
+    rows = route_diagram(line.buses[0].lines["sclk"])
+    assert all(len(r) <= 80 for r in rows), rows
+    assert len(rows) == 3
+    assert rows[0].startswith("U1 ─2.5 cm─ U2 ─2.5 cm─ U3")
+    # the second row goes on from the point the first ended at; the branch names its point
+    assert rows[1].startswith("… " + rows[0].split()[-1] + " ─")
+    # every point of the path once, in order, across its rows
+    names = [w for w in (rows[0] + " " + rows[1].split(" ", 2)[2]).split() if w.startswith("U")]
+    assert names == [f"U{i}" for i in range(1, 14)]
+    assert rows[2].strip() == "└ U12 ─2 cm─ TP1"
+
+
+def test_route_chart_captions_say_where_and_claim_no_resistor_the_line_lacks(tmp_path):
+    # a route without a series resistor: the waveforms' caption read "each receiver at
+    # its own point of the route, with the line's series resistor", and the edge chart's
+    # operating point was "at the far end", which a route's is not (its slowest receiver)
+    pytest.importorskip("altair")
+    from pinlib.present import review
+
+    design, _ = _check(_flight_design(), tmp_path)
+    built = review.build_review(design, check_design(design))
+    charts = [c for c in built.all_charts() if c.kind in ("waveforms", "edge-vs-load")]
+    assert {c.kind for c in charts} == {"waveforms", "edge-vs-load"}
+    for c in charts:
+        assert "series resistor" not in c.caption, c.caption
+        assert "far end" not in c.caption, c.caption
+        assert ". each" not in c.caption and ". rise" not in c.caption  # sentences
+    edges = [c for c in charts if c.kind == "edge-vs-load"]
+    assert all("at the slowest receiver's own point of the route" in c.caption
+               for c in edges)
+
+
+def test_the_edge_rule_clock_note_of_a_routed_bus_speaks_of_receivers(tmp_path):
+    # on a route there is no one far end: the edges the rule reads are each receiver's
+    _, bus = _check(_flight_design(), tmp_path)
+    note = next(n for n in bus.notes if n.startswith("max_clock_edge_rule"))
+    assert "every receiver's edge (at its own point of a route)" in note
+    assert "far-end" not in note
+
+
+def test_a_route_diagram_puts_each_branch_right_below_the_row_it_leaves(tmp_path):
+    # U1 -> A -> B -> U2 with a stub B -> TP, and A -> C -> U3 with C -> U4 beside: the
+    # stub at B was drawn after A's whole branch, under C's row, as if it left that row
+    from pinlib.present.review.text import route_diagram
+
+    last = '  { ref = "U3", part = "nor-flash-spi" },\n'
+    head = HEAD.replace(last, last + '  { ref = "U4", part = "nor-flash-spi" },\n')
+    path = _design_text(tmp_path, head, _stretch("U1", "A"), _stretch("A", "B", "3 cm"),
+                        _stretch("B", "U2", "1 cm"), _stretch("A", "C", "4 cm"),
+                        _stretch("C", "U3", "5 mm"), _stretch("C", "U4", "7 cm"),
+                        _stretch("B", "TP", "1.5 mm"))
+    rows = route_diagram(load_design(path).buses[0].lines["sclk"])
+    assert rows == [
+        "U1 ─2 cm─ A ─3 cm─ B ─1 cm─ U2",
+        "                   └ B ─1.5 mm─ TP",
+        "          └ A ─4 cm─ C ─5 mm─ U3",
+        "                     └ C ─7 cm─ U4",
+    ]
 
 
 def test_json_names_each_receiver(capsys):

@@ -243,10 +243,13 @@ TOO_MANY_SECTIONS = "too many sections on one trace"
 ROUTE_OR_STRETCH = "give either a route or a stretch (length, sections...), not both"
 ROUTE_ON_OPEN_DRAIN = "an open-drain bus's trace takes no route"
 TOO_MANY_ROUTE_STRETCHES = "too many stretches in one route"
+ROUTE_EMPTY = "a route with no stretch"
+POINT_NAME_CONTROL = "a route point named with a line break or a control character"
 ROUTE_CLOSES_LOOP = "this stretch closes a loop in the route: its two points are already joined"
 ROUTE_NOT_CONNECTED = "this stretch joins nothing of the rest of the route"
 ROUTE_MISSES_DEVICE = "a device on the line is at no point of its route"
 ROUTE_DEVICE_NOT_ON_LINE = "the point names a device of the bus that is not on this line"
+ROUTE_DEVICE_OF_OTHER_BUS = "the point names a device of another bus, not of this one"
 
 # ---------------------------------------------------------------- pinlib/cli/commands/
 NO_FOLDER_FOR_NEW_PART = "no folder to write the new part into"

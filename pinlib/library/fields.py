@@ -94,9 +94,16 @@ def _model_in(annotation) -> type[Record] | None:
     return None
 
 
+def _bare(annotation):
+    """The type inside an ``Annotated[...]`` (a field with a converter or a rule)."""
+    while typing.get_origin(annotation) is typing.Annotated:
+        annotation = typing.get_args(annotation)[0]
+    return annotation
+
+
 def submodel(info) -> type[Record] | None:
     """The model of a nested table (``supply``, ``timing``), None for maps and lists."""
-    origin = typing.get_origin(info.annotation)
+    origin = typing.get_origin(_bare(info.annotation))
     if origin in (dict, tuple, list):
         return None
     return _model_in(info.annotation)
@@ -104,15 +111,17 @@ def submodel(info) -> type[Record] | None:
 
 def mapping_of(info) -> type[Record] | None:
     """``dict[str, Pin]`` -> Pin (tables of named items: ``pins``, ``sides``)."""
-    if typing.get_origin(info.annotation) is dict:
-        return _model_in(typing.get_args(info.annotation)[1])
+    tp = _bare(info.annotation)
+    if typing.get_origin(tp) is dict:
+        return _model_in(typing.get_args(tp)[1])
     return None
 
 
 def sequence_of(info) -> type[Record] | None:
     """``tuple[Edge, ...]`` -> Edge (arrays of tables: ``edges``)."""
-    if typing.get_origin(info.annotation) in (tuple, list):
-        return _model_in(typing.get_args(info.annotation)[0])
+    tp = _bare(info.annotation)
+    if typing.get_origin(tp) in (tuple, list):
+        return _model_in(typing.get_args(tp)[0])
     return None
 
 
@@ -148,7 +157,8 @@ def model_at(root: type[Record], loc) -> type[Record] | None:
     the models (a plain value, a key of a free table)."""
     model, keys, i = root, list(loc)[:-1], 0
     while i < len(keys):
-        info = model.fields().get(keys[i]) if isinstance(keys[i], str) else None
+        by_key = {f.key: f for f in model.fields().values()}  # as the file spells them
+        info = by_key.get(keys[i]) if isinstance(keys[i], str) else None
         if info is None:
             return None
         inner = mapping_of(info) or sequence_of(info)
@@ -168,7 +178,7 @@ def unknown_field_help(root: type[Record], loc, format_name: str) -> tuple[str, 
     model = model_at(root, loc)
     if model is None or not loc:
         return M.EXPECTED_FIELD_OF.format(format=format_name, fields="see its documentation"), None
-    names = list(model.fields())
+    names = [f.key for f in model.fields().values()]  # "from", not the attribute from_
     key = str(loc[-1])
     shown = ", ".join(names[:_FIELDS_SHOWN])
     if len(names) > _FIELDS_SHOWN:  # a message stays readable: the rest in the docs

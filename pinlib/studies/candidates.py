@@ -406,10 +406,12 @@ def _summary_of(results: list[BusResult], places) -> tuple:
 
 
 def _where_text(wc: dict, multi: bool) -> str:
-    """Where a check is, as the ranking names it: ``main-3v3 Noise margin low SDA``."""
+    """Where a check is, as the ranking names it: ``main-3v3 Noise margin low SDA``; a
+    line's check with its subject, the receiver (``sclk Overshoot U3``: on a route each
+    receiver has its own)."""
     return " ".join(x for x in (wc["bus"] if multi else None, wc.get("segment"),
                                 wc.get("line"), check_label(wc["id"]),
-                                wc.get("subject") if not wc.get("line") else None) if x)
+                                wc.get("subject")) if x)
 
 
 def _with_status_by(where: dict | None, rank: int | None, fixed: dict | None,

@@ -83,9 +83,11 @@ class LineAnalysis:
 
     @property
     def delay(self) -> float:
-        """One-way delay of the line; of a route, the longest between two points. [s]"""
+        """One-way delay of the line; of a route, the longest from a driver's point to any
+        point of it (:func:`farthest_from`: a line fed from its middle is not as long as
+        its two arms end to end). [s]"""
         if self.net is not None:
-            return self.net.longest_delay
+            return farthest_from(self.net, [d.ref for d in self.drivers])
         return sum(s.td for s in self.stretches)
 
     @property
@@ -115,6 +117,20 @@ class LineAnalysis:
             kept = _case(self, case.driver, 0.0)
         self.unterminated = {**(self.unterminated or {}), ref: kept}
         return kept
+
+
+def farthest_from(net: RouteNet, refs: Sequence[str]) -> float:
+    """The longest one-way delay from the point of any of ``refs`` to any point of the
+    route (the whole tree's diameter when ``refs`` is empty). [s]
+
+    In a tree whose stretches have no negative delay, the point farthest from any point
+    is an end of a longest path (a diameter), so three walks of the tree serve every
+    driver: from the first point to one end, from that end to the other, and back."""
+    d0 = net.delays_from(0)
+    da = net.delays_from(max(range(len(d0)), key=d0.__getitem__))
+    db = net.delays_from(max(range(len(da)), key=da.__getitem__))
+    nodes = [net.node(r) for r in refs] or range(len(da))
+    return max(max(da[n], db[n]) for n in nodes)
 
 
 def _others(pins: Sequence[Endpoint], driver: Endpoint) -> list[Endpoint]:
@@ -178,3 +194,36 @@ def _figures_of(cases: dict, receivers=()) -> dict:
         under.append(float(np.max(si["fall"].extremes()[1][others])) + si["fall"].v_to)
     return {"edge_rise_time": max(rise_t), "edge_fall_time": max(fall_t),
             "overshoot": max(over), "undershoot": max(under)}
+
+
+def idle_pin_extremes(cases: dict, loads=()) -> list[tuple]:
+    """On a route, the line's overshoot or undershoot figure (the worst at any pin's
+    point) where it lies at a pin that has no check of it, its part stating no
+    ``abs_max`` for the pin (on CIPO often a peripheral's own CIPO pin while another
+    drives), beyond the worst at the pins that have one:
+    ``(figure, value, pin label, driver ref, worst at a checked pin or None)``. [1, V]
+    """
+    if any(c.points is None for c in cases.values()):
+        return []
+    checked = {p.ref for p in loads if p.level("abs_max") is not None}
+    label = {p.ref: p.label for p in loads}
+    out = []
+    for name, edge, k in (("overshoot", "rise", 0), ("undershoot", "fall", 1)):
+        idle, at_checked = [], -math.inf
+        for c in cases.values():
+            wave = (c.points if c.fast_points is None else c.fast_points)[edge]
+            ext = wave.extremes()[k]
+            for ref in c.load_refs:
+                v = float(ext[c.net.node(ref)]) + (wave.v_to if k else -wave.v_to)
+                if ref in checked:
+                    at_checked = max(at_checked, v)
+                else:
+                    idle.append((v, label.get(ref, ref), c.driver.ref))
+        top = max((v for v, _, _ in idle), default=-math.inf)
+        if top > at_checked and top > 0:
+            # the first of the pins at the worst, to the solver's last bits (twin pins of
+            # a symmetric route tie; which of them is named does not follow rounding)
+            _, pin, driver = next(x for x in idle if x[0] >= top - 1e-9 * top)
+            out.append((name, top, pin, driver,
+                        at_checked if math.isfinite(at_checked) else None))
+    return out

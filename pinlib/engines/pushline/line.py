@@ -12,7 +12,13 @@ from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import dotted
 from pinlib.core.valueclass import value_class
 from pinlib.engines import memo
-from pinlib.engines.pushline.analysis import LineAnalysis, _figures_of, _fmt, _others
+from pinlib.engines.pushline.analysis import (
+    LineAnalysis,
+    _figures_of,
+    _fmt,
+    _others,
+    idle_pin_extremes,
+)
 from pinlib.engines.pushline.drive import _driver_model, _open_drain_model, _pullups
 from pinlib.engines.pushline.pins import Endpoint
 from pinlib.engines.pushline.rules import (
@@ -187,7 +193,8 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
     series resistor and the final cases, checks, figures."""
     notes = res.notes
     stretches = line_stretches(line)
-    net = _route_net(line.route, stretches) if line.route else None
+    anchor = next((p.ref for p in loads if p.device.is_controller), None)
+    net = _route_net(line.route, stretches, anchor) if line.route else None
     a = LineAnalysis(signal, line, stretches, list(drivers), list(loads), list(receivers),
                      result=res, net=net)
     if not a.drivers:
@@ -349,6 +356,7 @@ def _add_figures(a: LineAnalysis, res: LineResult) -> None:
     res.figure("series_resistor", a.rs, "Ω")
     res.figure("overshoot", figs["overshoot"], "V")
     res.figure("undershoot", figs["undershoot"], "V")
+    _idle_pin_notes(a, res)
     res.figure("transmission_line", bool(a.long), "")
     used = any(c.distributed for c in a.cases.values())
     res.figure("model", "distributed" if used else "lumped", "")
@@ -357,9 +365,35 @@ def _add_figures(a: LineAnalysis, res: LineResult) -> None:
     res.figure("delay_to_edge_ratio", a.ratio, "")
 
 
-def _route_net(route, stretches):
-    """:func:`pinlib.engines.pushline.routes.route_net`, imported by the first routed
-    line (a design of point-to-point lines does without the tree solver's set-up)."""
-    from pinlib.engines.pushline.routes import route_net
+def _idle_pin_notes(a: LineAnalysis, res: LineResult) -> None:
+    """A note for each pin where the line's overshoot or undershoot figure lies that no
+    check covers (:func:`~pinlib.engines.pushline.analysis.idle_pin_extremes`)."""
+    by_place: dict[tuple, list] = {}
+    for name, v, pin, driver, at_checked in idle_pin_extremes(a.cases, a.loads):
+        by_place.setdefault((pin, driver), []).append((name, v, at_checked))
+    for (pin, driver), got in by_place.items():
+        what = " and ".join(f"{name} {_fmt(v, 'V')}" for name, v, _ in got)
+        many = len(got) > 1
+        known = [r for _, _, r in got if r is not None]
+        rest = ("; the worst at a pin with a check: "
+                + " and ".join(_fmt(r, "V") for r in known)) if len(known) == len(got) else ""
+        res.notes.append(f"{what} (the line's {'figures' if many else 'figure'}, the worst "
+                         f"at any pin) at {pin} while {driver} drives: its part states no "
+                         f"abs_max for that pin, so no check covers {'them' if many else 'it'}"
+                         f"{rest}")
 
-    return route_net(route, stretches)
+
+def _route_net(route, stretches, anchor: str | None = None):
+    """:func:`pinlib.engines.pushline.routes.route_net`, imported by the first routed
+    line (a design of point-to-point lines does without the tree solver's set-up), with
+    its far point (where the line's ``extra_capacitance`` sits) the point farthest in
+    delay from ``anchor``, the bus's controller, when it is on the line: the same
+    whichever way the route is written, and the far end of the simple form from the
+    controller.  Without one, the farthest from the route's first point."""
+    from pinlib.engines.pushline.routes import RouteNet, route_net
+
+    net = route_net(route, stretches)
+    if anchor is None or anchor not in net.names:
+        return net
+    d = net.delays_from(net.node(anchor))
+    return RouteNet(net.names, net.sections, max(range(len(d)), key=d.__getitem__))

@@ -85,18 +85,26 @@ def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
     dip = float(dips[own].max())
     low_allowed = min(allowed, UNDERSHOOT_DEFAULT)
     corner = " (fast corner)" if fast[own].any() else ""
+    # with several drivers (CIPO's peripherals) the one whose edge it is: where a series
+    # resistor would go
+    mask = np.ones(len(refs), dtype=bool) if isinstance(own, slice) else own
+    mine = [r for r, keep in zip(refs, mask, strict=True) if keep]
+    by_peak = by_dip = ""
+    if len(mine) > 1:
+        by_peak = f" while {mine[int(np.argmax(peaks[own]))]} drives"
+        by_dip = f" while {mine[int(np.argmax(dips[own]))]} drives"
     return [
         check_max(
             "overshoot", above, allowed, "V", p.source("abs_max"),
-            f"peak {_fmt(peak, 'V')} at {p.label} against its abs_max {_fmt(abs_max, 'V')} "
-            f"at {_fmt(p.vdd, 'V')}: {_fmt(above, 'V')} above its supply, "
-            f"{_fmt(allowed, 'V')} allowed{corner}", warn_margin=warn, subject=p.ref,
+            f"peak {_fmt(peak, 'V')} at {p.label}{by_peak} against its abs_max "
+            f"{_fmt(abs_max, 'V')} at {_fmt(p.vdd, 'V')}: {_fmt(above, 'V')} above its "
+            f"supply, {_fmt(allowed, 'V')} allowed{corner}", warn_margin=warn, subject=p.ref,
             details={"peak": peak, "abs_max": abs_max, "supply": p.vdd}),
         # the part format records the upper rating only: the low limit is inferred
         rule_of_thumb(check_max(
             "undershoot", dip, low_allowed, "V", f"{UNDERSHOOT_RULE}; {p.source('abs_max')}",
-            f"dip to {_fmt(-dip, 'V')} at {p.label}; {_fmt(low_allowed, 'V')} below ground "
-            f"allowed{corner}", warn_margin=warn, subject=p.ref)),
+            f"dip to {_fmt(-dip, 'V')} at {p.label}{by_dip}; {_fmt(low_allowed, 'V')} below "
+            f"ground allowed{corner}", warn_margin=warn, subject=p.ref)),
     ]
 
 
@@ -111,6 +119,7 @@ def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
     """Re-crossings of VIL/VIH at one receiver over every other driver's edges (the fast
     corner's, where a driver has one)."""
     counts = {}
+    by_driver: dict[str, int] = {}
     for ref, c in cases.items():
         if ref == rx.ref:
             continue
@@ -118,7 +127,11 @@ def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
             got = c.si_wave_at(rx.ref, edge).recrossings(v_il, v_ih)
             prev = counts.get(edge, (0, 0))
             counts[edge] = (max(prev[0], int(got.entry)), max(prev[1], int(got.opposite)))
+            by_driver[ref] = by_driver.get(ref, 0) + int(got.entry)
     total = sum(e for e, _ in counts.values())
+    # with several drivers (CIPO's peripherals) the one whose edges ring most: where the
+    # series resistor goes
+    whose = max(by_driver, key=by_driver.get) if len(by_driver) > 1 and total else None
     if total == 0:
         status = "pass"
     else:
@@ -130,11 +143,13 @@ def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
         (f"no re-crossing of VIL {_fmt(v_il, 'V')} / VIH {_fmt(v_ih, 'V')} at {rx.label}"
          if total == 0 else
          f"{total} re-crossing(s) of VIL {_fmt(v_il, 'V')} / VIH {_fmt(v_ih, 'V')} at "
-         f"{rx.label} after the first crossing: risk of {what}") + corner,
+         f"{rx.label} after the first crossing"
+         + (f" while {whose} drives" if whose else "") + f": risk of {what}") + corner,
         subject=rx.ref,
         details={f"{edge}_{kind}": n for edge, (e, o) in counts.items()
                  for kind, n in (("recrossings", e), ("full_reversals", o))},
-        fix=None if total == 0 else "add or increase a series resistor at the driver")
+        fix=None if total == 0 else "add or increase a series resistor at the driver"
+                                    + (f" ({whose})" if whose else ""))
 
 
 def _driver_levels(d: Endpoint, c) -> tuple[float, str, float, str]:

@@ -85,8 +85,11 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
         res.notes.append(f"max_clock {_fmt(f_top, 'Hz')}: the highest clock the timing "
                          f"budget and the parts' f_max allow, set by {by}")
     if math.isfinite(f_edge):
+        # on a route the edges are each receiver's at its own point, not a far end's
+        edges = ("receiver's edge (at its own point of a route)"
+                 if any(la.net is not None for la in sa.lines.values()) else "far-end edge")
         res.notes.append(f"max_clock_edge_rule {_fmt(f_edge, 'Hz')}: the highest clock at "
-                         f"which every far-end edge keeps within {EDGE_FRACTION:.0%} of the "
+                         f"which every {edges} keeps within {EDGE_FRACTION:.0%} of the "
                          f"period (rule of thumb; set by {edge_sig}); it warns, it does not "
                          "limit")
     for fig, tid in MARGIN_FIGURES:

@@ -69,11 +69,15 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict,
     r.geometries = _geometries(raw, r.err) if kept is None else kept.geometries
     buses = []
     ids: set[str] = set()
+    homes: dict[str, str] = {}  # each reference's first bus (a route's point names them)
+    for rb in raw.bus:
+        for d in _raw_devices(rb):
+            homes.setdefault(d.ref, rb.id)
     for bi, rb in enumerate(raw.bus):
         if kept is not None and not any(d.ref in swaps for d in _raw_devices(rb)):
             buses.append(kept.buses[bi])  # built from the same tables before
             continue
-        buses.append(_bus(rb, ("bus", bi), ids, r))
+        buses.append(_bus(rb, ("bus", bi), ids, r, homes))
     _one_part_per_reference(buses, r.err, fname, index)
     unknown = set(swaps) - r.swapped
     if unknown:
@@ -95,9 +99,10 @@ def _raw_devices(rb: RawBus):
         yield from seg.devices
 
 
-def _bus(rb: RawBus, bloc, ids: set[str], r: _Resolver) -> Bus:
+def _bus(rb: RawBus, bloc, ids: set[str], r: _Resolver, homes: dict) -> Bus:
     """One bus of the file: its id unique, its mode and clock valid, then built by its
-    kind (open-drain or push-pull)."""
+    kind (open-drain or push-pull); ``homes``: the bus of each reference designator of
+    the design."""
     err = r.err
     if rb.id in ids:
         raise err(M.DUPLICATE_BUS_ID, bloc + ("id",), value=rb.id)
@@ -115,4 +120,4 @@ def _bus(rb: RawBus, bloc, ids: set[str], r: _Resolver) -> Bus:
                   hint="give its clock instead" if rb.protocol == "spi" else None)
     if protocols.is_open_drain(rb.protocol):
         return _open_drain_bus(rb, bloc, mode, r.device, r.sections, r.cables, err)
-    return _push_pull_bus(rb, bloc, r.device, r.sections, err)
+    return _push_pull_bus(rb, bloc, r.device, r.sections, err, homes)

@@ -116,7 +116,7 @@ def _check_bridges(segments: list[Segment], err) -> None:
                       hint=f"found side(s): {', '.join(sides)}")
 
 
-def _push_pull_bus(rb: RawBus, bloc, device, sections, err) -> Bus:
+def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
     if rb.segment:
         raise err(M.BUS_HAS_NO_SEGMENTS.format(protocol=rb.protocol), bloc + ("segment",),
                   hint="route each signal under lines.<signal>")
@@ -136,7 +136,7 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err) -> Bus:
             raise err(M.UNKNOWN_SPI_SIGNAL, loc, value=sig, expected=", ".join(SPI_SIGNALS))
         if rt.route:
             secs, points = route_of(rt, loc, devices, rb.protocol, sig, len(rb.lines),
-                                    sections, err)
+                                    sections, err, homes)
         else:
             secs, points = sections(rt, loc), ()
         lines[sig] = Line(sig, secs, rt.series_resistor, rt.extra_capacitance, loc, points)

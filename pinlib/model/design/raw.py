@@ -122,7 +122,16 @@ class RawSection(Record):
     part: str | None = None           # a cable class from the library
 
 
-PointName = Annotated[str, Rule(min_length=1, max_length=40)]
+def _one_line(raw, name=None):
+    """A route point's name as written; one with a line break or another control
+    character is refused (it would break the report's route diagram)."""
+    if isinstance(raw, str) and any(ord(ch) < 32 or ord(ch) == 127 for ch in raw):
+        raise DesignError(M.POINT_NAME_CONTROL, value=raw,
+                          expected="a name on one line, without control characters")
+    return raw
+
+
+PointName = Annotated[str, Convert(_one_line), Rule(min_length=1, max_length=40)]
 
 
 class RawRouteStretch(RawSection):
@@ -133,9 +142,20 @@ class RawRouteStretch(RawSection):
     to: PointName
 
 
+def _a_route(raw, name=None):
+    """A route as written; an empty one is refused (it would read as no route, and the
+    line would then be blamed for a missing length)."""
+    if isinstance(raw, list) and not raw:
+        raise DesignError(M.ROUTE_EMPTY, value="[]",
+                          expected='at least one stretch, e.g. route = [{ from = "U1", '
+                                   'to = "U2", length = "2 cm", geometry = "NAME" }]')
+    return raw
+
+
 class RawTrace(RawSection):
     sections: tuple[RawSection, ...] = ()
-    route: tuple[RawRouteStretch, ...] = ()  # push-pull lines only
+    # push-pull lines only
+    route: Annotated[tuple[RawRouteStretch, ...], Convert(_a_route)] = ()
     length: Length | None = None  # type: ignore[assignment]
     series_resistor: SeriesSetting = "none"  # push-pull lines only
     extra_capacitance: Capacitance = 0.0

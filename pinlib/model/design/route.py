@@ -57,8 +57,9 @@ def _check_tree(points: Sequence[tuple[str, str]], loc, err) -> None:
 
 
 def route_of(rt: RawTrace, loc, devices: Sequence[Device], protocol: str, signal: str,
-             n_lines: int, sections: Callable, err) -> tuple[tuple[Section, ...],
-                                                             tuple[tuple[str, str], ...]]:
+             n_lines: int, sections: Callable, err,
+             homes: dict | None = None) -> tuple[tuple[Section, ...],
+                                                 tuple[tuple[str, str], ...]]:
     """The sections of a routed line and their (from, to) points, index by index.
 
     Parameters
@@ -77,13 +78,16 @@ def route_of(rt: RawTrace, loc, devices: Sequence[Device], protocol: str, signal
         The resolver's ``sections(raw_stretch, loc)``. [1]
     err : callable
         The resolver's error builder, ``err(problem, loc, **kw)``. [1]
+    homes : dict, optional
+        The bus of every reference designator of the design. [1]
 
     Raises
     ------
     DesignError
         A route with another stretch form beside it, too many stretches, a loop, a part
-        left apart, a device of the bus not on the line at a point, or a device on the
-        line at no point; each naming the file, line and field.
+        left apart, a device of the bus not on the line at a point, a device of another
+        bus at a point, or a device on the line at no point; each naming the file, line
+        and field.
     """
     route = rt.route
     rloc = loc + ("route",)
@@ -106,6 +110,14 @@ def route_of(rt: RawTrace, loc, devices: Sequence[Device], protocol: str, signal
                 raise err(M.ROUTE_DEVICE_NOT_ON_LINE, rloc + (i, key), value=p,
                           hint=f"it has no pin on {signal}; name a junction otherwise "
                                "(a name that is no device of the bus)")
+            if p not in of_bus and p in (homes or {}):
+                # read as a junction it would leave the device off the line unnoticed
+                raise err(M.ROUTE_DEVICE_OF_OTHER_BUS, rloc + (i, key), value=p,
+                          expected="a device of this bus, or a junction named like no "
+                                   "device of the design",
+                          hint=f"{p} sits on bus {homes[p]}; to load this line, list it "
+                               "in this bus's devices too (one ref is one chip, on as "
+                               "many buses as it is wired to)")
     named = {p for pair in points for p in pair}
     for d in devices:
         if d.ref in on and d.ref not in named:

@@ -347,8 +347,8 @@ def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None =
     if la.net is not None:
         waves = _route_waves(la, ref, case, receiver, cases)
         if receiver is None:
-            notes.append("each receiver at its own point of the route, with the line's "
-                         "series resistor")
+            notes.append("each receiver at its own point of the route"
+                         + (", with the line's series resistor" if la.rs > 0 else ""))
     else:
         waves = {f"{edge}, {name}": c.wave(edge) for name, c in cases.items()
                  for edge in ("rise", "fall")}

@@ -41,6 +41,11 @@ def _pullup_charts(bus, design, result: BusResult, keys, charts):
                     chosen_label=f"design: {_f(d.chosen_rp, 'Ω')} at {_f(d.chosen_cb, 'F')}")))
 
 
+def _sentence(text: str) -> str:
+    """A phrase as a caption's sentence: its first letter capital."""
+    return text[:1].upper() + text[1:]
+
+
 def _push_pull_charts(bus, design, result: BusResult, keys, charts):
     import numpy as np
 
@@ -61,13 +66,16 @@ def _push_pull_charts(bus, design, result: BusResult, keys, charts):
                     ReviewChart(key, "edge-vs-load", title, "", None, err.message))
                 continue
             op_label = e.operating_label
+            routed = la.net is not None
+            at = ("at the slowest receiver's own point of the route" if routed
+                  else "at the far end")
             caption = (f"Curves: the driver model of {ref} (a ramp behind r_out, fitted to "
                        "its datasheet edges) into a lumped load at the pin"
                        + (f", without and with the {_f(e.rs, 'Ω')} series resistor" if e.rs
                           else "")
                        + ". Diamonds: the part's datasheet points. Cross: the engine's "
-                       f"operating point, the 10–90 % rise {_f(e.operating[1], 's')} at the far "
-                       f"end into {_f(e.operating[0], 'F')} (line and pins); the fall is "
+                       f"operating point, the 10–90 % rise {_f(e.operating[1], 's')} {at} "
+                       f"into {_f(e.operating[0], 'F')} (line and pins); the fall is "
                        f"{_f(e.operating_fall, 's')}.")
             charts.setdefault(place, []).append(_draw(
                 key, "edge-vs-load", title, caption,
@@ -80,15 +88,14 @@ def _push_pull_charts(bus, design, result: BusResult, keys, charts):
             title = f"Receiver waveforms: {bus.id} {sig.upper()} from {ref}"
             rx = ", ".join(w.receivers) or "no receiver"
             over = "; ".join(f"{n}: overshoot {_f(v, 'V')}" for n, v in w.overshoot.items())
-            routed = la.net is not None
             caption = ((f"Voltage at each receiver's own point of the route ({rx}) for a "
                         f"rising and a falling edge of {ref}" if routed else
                         f"Voltage at the far end ({rx}) for a rising and a falling edge of "
                         f"{ref}") + (", with and without the series resistor"
                                      if e.rs and not routed else "")
                        + f". Shaded: the band between VIL {_f(w.v_il, 'V')} and VIH "
-                       f"{_f(w.v_ih, 'V')}; dotted: VDD {_f(w.vdd, 'V')}. {over}."
-                       + ("".join(f" {n}." for n in w.notes)))
+                       f"{_f(w.v_ih, 'V')}; dotted: VDD {_f(w.vdd, 'V')}. {_sentence(over)}."
+                       + ("".join(f" {_sentence(n)}." for n in w.notes)))
             charts[place].append(_draw(
                 keys(bus.id, sig, ref, "waveforms"), "waveforms", title, caption,
                 lambda w=w, title=title, rx=rx: ch.waveforms(

@@ -84,11 +84,17 @@ def _length_text(metres: float) -> str:
     return f"{metres:.3g} m"
 
 
-def route_diagram(line) -> list[str]:
+#: The widest row of a route diagram (characters): longer paths continue on a new row.
+DIAGRAM_WIDTH = 80
+
+
+def route_diagram(line, width: int = DIAGRAM_WIDTH) -> list[str]:
     """A routed line as text, one row per path: the route's first point, then at each
     point its first stretch onwards on the same row (``U1 ─2 cm─ T1 ─13 cm─ U3``), every
     other stretch from a point on a row of its own below, indented to that point
-    (``└ T1 ─1 cm─ U2``).  Empty for a line without a route."""
+    (``└ T1 ─1 cm─ U2``), the branches farthest along the row first.  A path wider than
+    ``width`` goes on in the next row from its last point (``… U7 ─2 cm─ U8``).  Empty
+    for a line without a route."""
     points = list(getattr(line, "route", ()) or ())
     if not points:
         return []
@@ -108,17 +114,26 @@ def route_diagram(line) -> list[str]:
     starts = [(points[0][0], "")]  # (the point a row goes on from, the row so far)
     while starts:
         point, row = starts.pop(0)
+        lead = len(row) - len(row.lstrip(" "))
         row += point
+        first = len(row)
         branches = []
         while children.get(point):
             (nxt, length), *rest = children[point]
-            column = len(row) - len(point)
+            step = f" ─{_length_text(length)}─ {nxt}"
+            if len(row) + len(step) > width and len(row) > first:
+                rows.append(row)  # at least one stretch a row, however long
+                row = " " * lead + "… " + point
+            column = min(len(row) - len(point), width // 2)
             branches += [(child, " " * column + f"└ {point} ─{_length_text(ln)}─ ")
                          for child, ln in rest]
-            row += f" ─{_length_text(length)}─ {nxt}"
+            row += step
             point = nxt
         rows.append(row)
-        starts[0:0] = branches  # a row's branches follow it, in the order they leave it
+        # a row's branches follow it, the farthest along first (each right below the
+        # row it leaves, not below another branch's rows), those of one point in order
+        branches.sort(key=lambda b: -(len(b[1]) - len(b[1].lstrip(" "))))
+        starts[0:0] = branches
     return rows
 
 
