@@ -2375,6 +2375,8 @@ def _(env):
     # point) as the way out
     assert err.field == "bus[0].lines.sclk.sections[0].length"
     assert "shortest section" in err.hint and "0 for a point" in err.expected
+    # and the cable whose delays make the record that long is named too
+    assert "the record's length is set by bus[0].lines.sclk.sections[1] (1 km" in err.hint
     return err
 
 

@@ -23,6 +23,7 @@ from pinlib.engines.pushline.drive import _driver_model, _open_drain_model, _pul
 from pinlib.engines.pushline.pins import Endpoint
 from pinlib.engines.pushline.rules import (
     _FIGURE_UNITS,
+    _SETTLE_DELAYS,
     LINE_DELAY_RULE,
     LONG_LINE_RULE,
     LUMPED_RULE,
@@ -175,11 +176,27 @@ def _steps_error(exc: _TooManySteps, line: Line, signal: str, bus_id) -> InputEr
             expected="0 for a point (its capacitance lumped at its two ends, as a stub far "
                      f"shorter than the edge is), or more than {format_si(shortest, 'm')} "
                      "(the least for this edge's record; another edge may need more)",
-            hint="the solver's step divides the shortest section's delay")
+            hint="the solver's step divides the shortest section's delay"
+                 + _record_setter(line, stretches, i, exc.t_end))
         err.loc = loc
         return err
     where = f"bus.{bus_id}.lines.{signal}" if bus_id else f"lines.{signal}"
     return InputError(exc.problem, field=where, value=exc.value, hint=exc.hint)
+
+
+def _record_setter(line: Line, stretches, step_setter: int, t_end: float) -> str:
+    """The hint's second half where another section's delay makes most of the record (a
+    2 cm stretch beside 900 m: the step is the 2 cm's, the length the 900 m's): that
+    section, to be shortened (or described as the cable it likely is); else empty."""
+    j = max(range(len(stretches)), key=lambda k: stretches[k].td, default=-1)
+    if j < 0 or j == step_setter or j >= len(line.sections) or not line.sections[j].loc:
+        return ""
+    # the record runs _SETTLE_DELAYS of the line's delays (waves.edge_grid, routes._record)
+    if not _SETTLE_DELAYS * stretches[j].td > 0.5 * t_end:
+        return ""
+    s = line.sections[j]
+    return (f"; the record's length is set by {dotted(s.loc)} ({format_si(s.length, 'm')}, "
+            f"{_SETTLE_DELAYS:.0f} of its delays): shortened, it needs fewer steps")
 
 
 def _round_up(x: float) -> float:
