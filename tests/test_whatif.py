@@ -645,3 +645,30 @@ def test_monte_carlo_from_the_checks_results_equals_its_own(monkeypatch):
     # derived from the engine itself: the same nominal results, the same draws
     assert json.dumps(given.to_json(), sort_keys=True) == json.dumps(own.to_json(),
                                                                      sort_keys=True)
+
+
+def test_monte_carlo_says_on_how_many_boards_a_passing_check_warned(capsys, monkeypatch):
+    # A warning passes (only a published limit fails), so a check warning on every board
+    # read "100.00% ... (200/200)" beside its lowest margin with nothing to say it had
+    # warned; the row and the JSON now count the boards that warn
+    monkeypatch.setenv("COLUMNS", "400")
+    assert main(["check", str(DEMO), "--monte-carlo", "200", "--seed", "1", "--json"]) == 0
+    checks = json.loads(capsys.readouterr().out)["monte_carlo"]["checks"]
+    gate = next(c for c in checks if c["id"] == "bridge-gate-drive")
+    assert (gate["warns"], gate["fails"], gate["pass"]["passes"]) == (200, 0, 200)
+    # its margin is the gate overdrive in volts, never a percentage of a limit
+    assert gate["margin_unit"] == "V"
+    assert all(c["warns"] == 0 for c in checks if c["nominal_status"] == "pass"
+               and c["pass"]["passes"] == 200 and not c["varies"])
+    from pinlib.studies.whatif import mcresult
+    shown = mcresult.McResult.format_text
+    monkeypatch.setattr(mcresult.McResult, "format_text",
+                        lambda self, limit=12: shown(self, None))  # every row
+    assert main(["check", str(DEMO), "--monte-carlo", "200", "--seed", "1"]) == 0
+    out = capsys.readouterr().out
+    row = next(ln for ln in out.splitlines() if "bridge-gate-drive" in ln)
+    assert "(200/200)" in row and "warns on 200;" in row
+    low = gate["margin"]["min"]
+    assert f"min  +{low * 1e3:.0f} mV  warns" in row  # it read "min  +21.3 %"
+    assert "a warning passing" in out
+    assert not any("warns on" in ln for ln in out.splitlines() if "supply-range" in ln)

@@ -139,17 +139,21 @@ def margin_text(c: Check) -> str:
     """A check's margin for people: ``+12 %`` relative to its limit, or in the check's unit
     (``+210 mV``) where the margin is absolute; "—" where it is not a finite number (the
     check's message says why: a limit of zero, a value that does not exist)."""
-    from pinlib.core.quantity import format_si
-
     if c.margin is None:
         return ""
-    m = float(c.margin)
-    if not math.isfinite(m):
-        return "—"
-    if c.margin_unit is not None:
-        text = format_si(abs(m), c.margin_unit)
-        return ("−" if m < 0 else "+") + text
-    return percent_text(m)
+    return signed_margin_text(c.margin, c.margin_unit)
+
+
+def signed_margin_text(m, unit: str | None = None, decimals: int = 0) -> str:
+    """A margin as text: in ``unit`` where it is absolute (``+210 mV``), else relative
+    (:func:`percent_text` with ``decimals``); "—" where it is None or not finite.  The one
+    rule of the checks, the candidates and the Monte Carlo rows."""
+    from pinlib.core.quantity import format_si
+
+    if unit is None or m is None or not math.isfinite(float(m)):
+        return percent_text(m, decimals)
+    m = float(m)
+    return ("−" if m < 0 else "+") + format_si(abs(m), unit)
 
 
 #: The largest relative margin written as a number, in percent: beyond it a margin reads

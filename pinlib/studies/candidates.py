@@ -47,7 +47,7 @@ from pinlib.engines import opendrain as od
 from pinlib.engines.opendrain import batch as ob
 from pinlib.library.schema import CATEGORIES, Part
 from pinlib.model.design import Bus, Design, Device
-from pinlib.model.result import STATUSES, BusResult, json_number, percent_text, worst
+from pinlib.model.result import STATUSES, BusResult, json_number, signed_margin_text, worst
 from pinlib.studies.compare import can_serve, positions
 from pinlib.studies.ppcandidates import batched_note, evaluate_batched
 
@@ -158,11 +158,8 @@ class Candidate:
     def margin_text(self, decimals: int = 1) -> str:
         """The worst margin as people read it: ``+4.0 %``, or in its own unit where it
         is not a fraction of the limit (``+210 mV``, a translator's gate overdrive)."""
-        unit = (self.worst_check or {}).get("margin_unit")
-        m = self.worst_margin
-        if unit is None or m is None or not math.isfinite(m):
-            return percent_text(m, decimals)
-        return ("−" if m < 0 else "+") + format_si(abs(m), unit)
+        return signed_margin_text(self.worst_margin,
+                                  (self.worst_check or {}).get("margin_unit"), decimals)
 
     def to_json(self) -> dict:
         return {"part": self.part, "title": self.title, "category": self.category,

@@ -4,7 +4,7 @@ run's summary sentences and the histograms of the checks with the lowest pass fr
 
 from __future__ import annotations
 
-from pinlib.model.result import percent_text
+from pinlib.model.result import signed_margin_text
 from pinlib.present.review.draw import _draw
 
 
@@ -38,10 +38,14 @@ def _mc_rows(mc) -> list[dict]:
             samples = None if margins is None else np.asarray(margins, dtype=float)
             lowest = entry.margin_quantiles((0.0,))[0] if hasattr(entry, "margin_quantiles") \
                 else None
+            # a margin in a unit (a gate overdrive in volts) is drawn and written in it
+            m_unit = _get(entry, "margin_unit")
             rows.append({
                 "where": _get(entry, "name") or _get(entry, "id", "check"),
-                "samples": samples, "limit": 0.0, "unit": "%", "kind": "min",
-                "label": f"Margin of {_get(entry, 'id', 'the check')}, relative to its limit",
+                "samples": samples, "limit": 0.0, "unit": m_unit or "%", "kind": "min",
+                "margin_unit": m_unit,
+                "label": f"Margin of {_get(entry, 'id', 'the check')}, "
+                         + ("above its limit" if m_unit else "relative to its limit"),
                 "fraction": float(passes.fraction), "ci": tuple(passes.interval),
                 "count": f"{passes.passes}/{passes.n}",
                 "varies": bool(_get(entry, "varies", True)),
@@ -87,7 +91,7 @@ def _mc_charts(mc, keys) -> tuple[list, list]:
     def order(r):
         frac = r["fraction"] if r["fraction"] is not None else 1.0
         low = r["lowest"] if r["lowest"] is not None else float("inf")
-        return (frac, low)
+        return (frac, r.get("margin_unit") is not None, low)  # volts never against fractions
 
     drawn = sorted((r for r in shown if r["samples"] is not None and r["varies"]),
                    key=order)[:MC_CHARTS]
@@ -99,7 +103,8 @@ def _mc_charts(mc, keys) -> tuple[list, list]:
             if r["ci"] is not None:
                 sub += f" ({float(r['ci'][0]):.2%} to {float(r['ci'][1]):.2%})"
         title = f"Monte Carlo: {r['where']}"
-        limit = "margin 0 (the limit itself)" if r["unit"] == "%" and r["limit"] == 0.0 \
+        limit = "margin 0 (the limit itself)" if (r["unit"] == "%" or r.get("margin_unit")) \
+            and r["limit"] == 0.0 \
             else "the check's limit"
         boards = ("every sampled board" if not r.get("of") or r.get("binned") is not None
                   else f"the first {r['samples'].size:,} of the {r['of']:,} sampled boards")
@@ -150,7 +155,8 @@ def _yield(y) -> str:
 def _mc_cells(row: dict) -> list[str]:
     frac = "" if row["fraction"] is None else f"{row['fraction']:.2%}"
     ci = "" if row["ci"] is None else f"{float(row['ci'][0]):.2%} to {float(row['ci'][1]):.2%}"
-    low = "" if row["lowest"] is None else percent_text(row["lowest"], 1)
+    low = "" if row["lowest"] is None else signed_margin_text(row["lowest"],
+                                                              row.get("margin_unit"), 1)
     sens = ", ".join(f"{n} {c:+.2f}" for n, c in row["sensitivity"]) or "—"
     return [row["where"], frac, ci, low, sens, row["source"]]
 

@@ -51,6 +51,8 @@ class CornerCheck:
         The parameters that set it: name, end (``"+"`` or ``"−"``) and the margin the
         check would gain with that parameter at its other end (largest first).  A
         parameter that moves nothing is left out. [1]
+    margin_unit : str or None
+        As :attr:`McCheck.margin_unit`. [1]
     """
 
     name: str
@@ -67,11 +69,13 @@ class CornerCheck:
     corner: list
     nominal_status: str | None = None
     nominal_margin: float | None = None
+    margin_unit: str | None = None
 
     def to_json(self) -> dict:
         return {"name": self.name, "bus": self.bus, "segment": self.segment,
                 "signal": self.signal, "id": self.id, "unit": self.unit, "source": self.source,
                 "status": self.status, "margin": json_number(self.margin),
+                "margin_unit": self.margin_unit,
                 "value": json_number(self.value), "limit": json_number(self.limit),
                 "corner": [{"parameter": n, "end": e, "gain": json_number(g)} for n, e, g in
                            self.corner],
@@ -104,16 +108,17 @@ class CornersResult:
         for bus, method in self.methods.items():
             lines.append(f"  bus {bus}: {method}")
         rows = [c for c in self.checks if c.corner]
-        rows.sort(key=lambda c: -math.inf if c.margin is None or math.isnan(c.margin)
-                  else c.margin)
+        rows.sort(key=lambda c: (c.margin_unit is not None,  # volts never against fractions
+                                 -math.inf if c.margin is None or math.isnan(c.margin)
+                                 else c.margin))
         shown = rows[:limit] if limit else rows
         if shown:
             lines.append("  lowest margins at their worst corners:")
             w = max(len(c.name) for c in shown)
             for c in shown:
                 corner = ", ".join(f"{n} {e}" for n, e, _ in c.corner)
-                lines.append(f"    {c.status:<4}  {c.name:<{w}}  {_fmt_margin(c.margin):>8}  "
-                             f"at {corner}")
+                margin = _fmt_margin(c.margin, c.margin_unit)
+                lines.append(f"    {c.status:<4}  {c.name:<{w}}  {margin:>8}  at {corner}")
             if len(shown) < len(rows):
                 lines.append(f"    … {len(rows) - len(shown)} more (JSON lists every check)")
         fixed = len(self.checks) - len(rows)
@@ -227,7 +232,8 @@ def _bus_checks(bus, run, worst: np.ndarray, params: list[Parameter],
             None if c.value is None else float(c.value[j]),
             None if c.limit is None else float(c.limit[j]),
             ob.STATUS[int(c.status[j])], corner,
-            ec.status if ec is not None else None, ec.margin if ec is not None else None))
+            ec.status if ec is not None else None, ec.margin if ec is not None else None,
+            ec.margin_unit if ec is not None else None))
     return out
 
 

@@ -9,7 +9,7 @@ from dataclasses import field
 import numpy as np
 
 from pinlib.core.valueclass import value_class
-from pinlib.model.result import json_number, percent_text
+from pinlib.model.result import json_number, signed_margin_text
 from pinlib.studies.whatif.tally import MarginHistogram
 from pinlib.studies.whatif.tolerances import Parameter
 from pinlib.studies.whatif.yields import CONFIDENCE, Yield, _pct
@@ -38,7 +38,8 @@ class McCheck:
         The margin and value of each of the first :attr:`sampled` boards (None for a
         yes/no check). [1], [unit]
     passes : Yield
-        Boards whose margin is not negative.
+        Boards on which the check does not fail (a warning passes: a rule of thumb's
+        negative margin warns, :attr:`warns` counts those boards).
     sensitivity : list of (str, float)
         Parameters by standardized regression coefficient of the margin (largest
         first, those of at least :data:`SENSITIVITY_FLOOR`). [1]
@@ -55,6 +56,9 @@ class McCheck:
         :data:`SENSITIVITY_BOARDS`, then the first that many. [1]
     histogram : MarginHistogram or None
         The finite margins of every board, counted in fine bins. [1]
+    margin_unit : str or None
+        The unit of an absolute margin (``"V"``: a translator's gate overdrive), None
+        for a margin relative to its limit (:attr:`pinlib.model.result.Check.margin_unit`).
     """
 
     name: str
@@ -78,6 +82,7 @@ class McCheck:
     worst_board: int | None = None
     sampled: int | None = None
     histogram: MarginHistogram | None = None
+    margin_unit: str | None = None
 
     @property
     def complete(self) -> bool:
@@ -111,7 +116,9 @@ class McCheck:
                 "signal": self.signal, "id": self.id, "unit": self.unit, "source": self.source,
                 "nominal_status": self.nominal_status,
                 "nominal_margin": json_number(self.nominal_margin),
-                "pass": self.passes.to_json(), "varies": self.varies,
+                "margin_unit": self.margin_unit,
+                "pass": self.passes.to_json(), "warns": self.warns, "fails": self.fails,
+                "varies": self.varies,
                 "margin": {"min": json_number(q[0]), "p01": json_number(q[1]),
                            "median": json_number(q[2])},
                 "sensitivity": [{"parameter": n, "coefficient": c} for n, c in self.sensitivity],
@@ -178,16 +185,22 @@ class McResult:
         for bus, y in self.buses.items():  # a coupling's id holds "<-"
             lines.append(f"  {'coupling' if '<-' in bus else 'bus'} {bus}: {_pct(y)}")
         rows = [c for c in self.checks if c.varies or c.passes.passes < c.passes.n]
-        rows.sort(key=lambda c: (c.passes.passes, _low(c)))
+        # margins in a unit are never ranked against fractions of a limit
+        rows.sort(key=lambda c: (c.passes.passes, c.margin_unit is not None, _low(c)))
         shown = rows[:limit] if limit else rows
         if shown:
             lines.append("  checks with the fewest passing boards and the lowest margins (pass "
-                         "fraction, lowest margin, most sensitive to):")
+                         "fraction, a warning passing; lowest margin; boards that warn; "
+                         "most sensitive to):")
             w = max(len(c.name) for c in shown)
             for c in shown:
                 sens = ", ".join(f"{n} {s:+.2f}" for n, s in c.sensitivity[:3]) or "—"
+                # a rule of thumb's check warns below its limit: 100 % passing beside a
+                # margin of -89 % says so, or it reads as a contradiction
+                warned = f"warns on {c.warns}; " if c.warns else ""
                 lines.append(f"    {c.name:<{w}}  {_pct(c.passes):<34} "
-                             f"min {_fmt_margin(c.margin_quantiles((0.0,))[0]):>8}  {sens}")
+                             f"min {_fmt_margin(c.margin_quantiles((0.0,))[0], c.margin_unit):>8}  "
+                             f"{warned}{sens}")
             if len(shown) < len(rows):
                 lines.append(f"    … {len(rows) - len(shown)} more that vary (JSON lists every "
                              "check)")
@@ -204,5 +217,5 @@ def _low(c: McCheck) -> float:
     return math.inf if q is None else q
 
 
-def _fmt_margin(m) -> str:
-    return percent_text(m, 1)
+def _fmt_margin(m, unit: str | None = None) -> str:
+    return signed_margin_text(m, unit, 1)
