@@ -442,6 +442,34 @@ lines.cipo = { length = "4 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }
     assert subjects == {"U2", "U3", "U4"}
 
 
+def test_a_line_without_a_delay_says_why_it_has_no_z0(tmp_path):
+    # a capacitance without a delay is a lumped line: Z0 showed "—" with nothing to say
+    # why; the figure now carries its reason (JSON null, never NaN)
+    body = """
+[[bus]]
+id = "s"
+protocol = "spi"
+clock = "10 MHz"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "pp-ctrl", role = "controller" },
+  { ref = "U2", part = "pp-periph" },
+]
+lines.sclk = { length = "4 cm", capacitance = "1 pF/cm" }
+lines.cipo = { length = "4 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }
+"""
+    d = _design(tmp_path, body)
+    lines = {ln.signal: ln for ln in evaluate_bus(d.bus("s"), d).lines}
+    z0 = lines["sclk"].figures["z0"]
+    assert math.isnan(z0.value) and "no section with a delay" in z0.reason
+    assert z0.to_json() == {"value": None, "unit": "Ω", "reason": z0.reason}
+    from pinlib.model.result import figure_text
+    assert figure_text(z0) == z0.reason  # it read "—"
+    # physics: Z0 = tpd / C per length = 50 ps / 1 pF
+    assert lines["cipo"].figures["z0"].value == pytest.approx(50.0, rel=1e-12)
+    assert lines["cipo"].figures["z0"].reason is None
+
+
 def test_gpio_push_pull_and_open_drain_nets(tmp_path):
     body = """
 [[bus]]

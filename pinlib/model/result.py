@@ -202,7 +202,8 @@ def figure_text(f: Figure) -> str:
     or, where it has no number, its reason in words ("no upper bound (Cb is 0)")."""
     from pinlib.core.quantity import format_value
 
-    if f.value is None and f.reason:
+    if f.reason and (f.value is None or (isinstance(f.value, float)
+                                         and not math.isfinite(f.value))):
         return f.reason
     return format_value(f.value, f.unit)
 

@@ -367,7 +367,9 @@ def _add_figures(a: LineAnalysis, res: LineResult) -> None:
     figs = _figures_of(a.cases, a.receivers)
     res.figure("load_capacitance", a.trace_c + max(c.c_far for c in a.cases.values()), "F")
     res.figure("trace_delay", a.delay, "s")
-    res.figure("z0", a.z0, "Ω")
+    res.figure("z0", a.z0, "Ω",
+               reason="no section with a delay (the line is a lumped capacitance)"
+               if math.isnan(a.z0) else None)
     res.figure("edge_rise_time", figs["edge_rise_time"], "s")
     res.figure("edge_fall_time", figs["edge_fall_time"], "s")
     res.figure("series_resistor", a.rs, "Ω")
