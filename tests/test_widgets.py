@@ -935,3 +935,33 @@ def test_crosstalk_explorer_names_the_designs_aggressor_and_its_sliders_units():
     text = info.value.message
     assert "30 µm" in text and "50 µm" in text and "2 mm" in text
     assert "Ω" not in text and "E24" not in text
+
+
+def test_bus_builder_marks_the_parts_the_bus_would_fail(library):
+    """A peripheral the bus as set would fail is still offered, its option says why
+    ("— fails here: up to 100 kHz") and so does the line under the list when it is
+    picked; the marks are the engine's own verdicts: each part offered is added, and
+    the device-speed and supply-range checks fail exactly for the marked ones."""
+    b = BusBuilder(library, peripherals=())
+    marked = set()
+    # Fast-mode at 3.3 V ± 5 %; ± 6 % takes the rail past a 3.135-3.465 V part's range
+    # (the controller's 3.0-3.6 V still holds it); SMBus 100 kHz slows the clock
+    for settings in ({}, {"supply_tolerance": 0.06, "fits_supply": False},
+                     {"protocol": "smbus", "mode": "100k", "supply_tolerance": 0.05}):
+        b.set(**settings)
+        for label, pid in list(b.pick.options):
+            b.pick.value = pid
+            ref = b.add_peripheral(pid)
+            failed = sorted(c.id for _, _, c in b.bus_result.all_checks()
+                            if c.id in ("device-speed", "supply-range") and c.status == "fail")
+            b.remove_peripheral(ref)
+            assert ("— fails here:" in label) == bool(failed), (settings, label, failed)
+            if failed:
+                marked.add((pid, tuple(failed)))
+                assert all(c in b.pick_fit.value for c in failed), b.pick_fit.value
+                assert pid in b.pick_fit.value
+            else:
+                assert b.pick_fit.value == ""
+    # the library's SMBus 100 kHz parts on the 400 kHz bus, and the FPGA bank at ± 6 %
+    assert ("battery-gauge-smbus", ("device-speed",)) in marked
+    assert ("fpga-io-3v3", ("supply-range",)) in marked
