@@ -24,8 +24,9 @@ from pinlib.present.charts.frame import (
     _unique,
     display_scale,
 )
+from pinlib.present.charts.notes import NOTE_PLACES, note_place
 from pinlib.present.charts.render import _alt, _data, _reuse
-from pinlib.present.charts.style import _HEIGHT, _WIDTH, OPERATING, series_colours
+from pinlib.present.charts.style import _HEIGHT, _WIDTH, OPERATING, series_colours, text_width
 
 if TYPE_CHECKING:  # pragma: no cover - typing only
     import altair as alt
@@ -101,15 +102,22 @@ def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
     op_rows = ([{"load": _num(op[0] * fx), "t": _num(op[1] * fy), "kind": op[2],
                  "note": f"{format_si(op[1], 's')} at {format_si(op[0], 'F')}"}]
                if op else None)
+    place = None
+    if op_rows is not None:  # the note beside the point, clear of the curves
+        place = note_place((op_rows[0]["load"], op_rows[0]["t"]),
+                           [([r["load"] for r in rows if r["series"] == n],
+                             [r["t"] for r in rows if r["series"] == n]) for n in names],
+                           text_width(op_rows[0]["note"], 11, bold=True),
+                           (_plot_room(width), float(height)), (log_x, log_y))
     known = _reuse(("edge_vs_load", x_title, y_title, bool(log_x), bool(log_y),
                     tuple(domain), tuple(kinds), tuple(shapes), curves_title, title,
-                    subtitle, width, height),
+                    subtitle, width, height, place),
                    [rows] + ([pts] if pts is not None else [])
                    + ([op_rows] if op_rows is not None else []))
     if known is not None:
         return known
     layers = _layers(rows, pts, op_rows, (x_title, y_title), (log_x, log_y),
-                     (domain, kinds, shapes), curves_title, width)
+                     (domain, kinds, shapes), curves_title, width, place)
     return _titled(_alt().layer(*layers), title, subtitle, width, height)
 
 
@@ -163,7 +171,8 @@ def _operating(operating, log_x: bool, log_y: bool) -> tuple[float, float, str] 
             str(operating[2]) if len(operating) == 3 else "operating point")
 
 
-def _layers(rows, pts, op_rows, titles, logs, legend, curves_title, width) -> list:
+def _layers(rows, pts, op_rows, titles, logs, legend, curves_title, width,
+            place=None) -> list:
     """The curves, the datasheet points and the operating point (with its values
     written beside it), as altair layers."""
     alt = _alt()
@@ -186,8 +195,10 @@ def _layers(rows, pts, op_rows, titles, logs, legend, curves_title, width) -> li
         layers.append(alt.Chart(_data(op_rows)).mark_point(
             filled=True, size=160, opacity=1, color=OPERATING).encode(
             x=x, y=y, shape=shape, tooltip=tips))
-        # its values written beside it: the cross is read on its own, not off a curve
+        # its values written beside it, where no curve passes (note_place): the cross
+        # is read on its own, not off a curve
+        align, baseline, dx, dy = place or NOTE_PLACES[0]
         layers.append(alt.Chart(_data(op_rows)).mark_text(
-            align="left", baseline="middle", dx=9, fontSize=11, fontWeight="bold",
+            align=align, baseline=baseline, dx=dx, dy=dy, fontSize=11, fontWeight="bold",
             color=OPERATING).encode(x=x, y=y, text=alt.Text("note:N")))
     return layers

@@ -270,13 +270,16 @@ def spaced_log_ticks(lo: float, hi: float, length: float, *, along: bool = True,
 
 
 def _q(field: str, title: str, *, log: bool = False, channel: str = "x", pad: bool = False,
-       ticks=None):
+       ticks=None, nice: bool = True):
     """A quantitative position channel; ``pad`` keeps the outermost values ``_PAD_PX``
-    inside the frame (a limit line is never drawn on the frame itself)."""
+    inside the frame (a limit line is never drawn on the frame itself); ``nice=False``
+    ends the axis at the data (no blank band after a record that ends between ticks)."""
     alt = _alt()
     props = {}
     if log:
         props["type"] = "log"
+    if not nice:
+        props["nice"] = False
     if pad:
         props.update(padding=_PAD_PX, nice=False)
         if not log:
