@@ -19,7 +19,9 @@ with the file browser side panel open and run with Run All; then, at 1400 × 900
 * changing one control changes a chart (workbook 04 has no chart: its second tab's
   controls show once the tab is chosen);
 * a bad quantity typed into a field shows an error beside that field, the field keeps
-  what was typed, and the charts and tables stay as they were;
+  what was typed, and the charts and tables stay as they were; typed into a field far
+  down the controls, the stale state shows in the viewport (the field's message says
+  the outputs are not recomputed; the charts in view are dimmed);
 * no request leaves 127.0.0.1 (each is aborted and recorded).
 
 ``pinlib workbench`` (Voilà) is driven the same way for workbook 01.  Screenshots go to
@@ -103,6 +105,9 @@ class Spec:
     #: (dropdown, option, button, list): the part with the longest id the library
     #: holds, added to the list, which must then show every item whole
     long_item: tuple[str, str, str, str] | None = None
+    #: (label, bad text, valid text): a field far down the controls, refused; the stale
+    #: state must then show in the viewport (the notice atop the outputs is out of it)
+    low_bad: tuple[str, str, str] | None = None
 
 
 #: the per-length trace values, shown for a trace given per length only
@@ -118,13 +123,15 @@ SPECS = [
          # 60 characters: a board's title as people write them
          long_text=(("Title", "Sensor board rev. C: I2C bus from the MCU to the front panel"),
                     ("Save as", "designs/sensor-board-rev-c.toml")),
-         long_item=("Peripheral", "board-to-board-connector", "Add", "Placed")),
+         long_item=("Peripheral", "board-to-board-connector", "Add", "Placed"),
+         low_bad=("Rp ±", "abc", "1 %")),
     Spec("02-push-pull-line.ipynb",
          required=("Driver", "Output pin", "Supply", "Receiver", "Trace", "Length", "Rs"),
          change=("Trace", None),
          bad=(("Length", "-5 cm", None),),
          may_hide=_PER_LENGTH,
-         long_item=("Receiver", "board-to-board-connector", "Add", "Receivers")),
+         long_item=("Receiver", "board-to-board-connector", "Add", "Receivers"),
+         low_bad=("Length", "abc", "10 cm")),
     Spec("03-spi-timing.ipynb",
          required=("Bus", "Clock", "SPI mode"),
          change=("Bus", None),
@@ -547,6 +554,46 @@ def test_a_bad_quantity_shows_an_error_beside_its_field(wb):
         if after != before:
             failures.append(f"{what}: the charts or tables changed")
     assert not failures, "\n  ".join(["bad quantities:"] + failures)
+
+
+_STALE_IN_VIEW = """() => {
+  const inView = el => { const r = el.getBoundingClientRect();
+    return el.checkVisibility() && r.height > 0 && r.bottom > 0 && r.top < innerHeight; };
+  const panel = document.querySelector('.jp-NotebookPanel:not(.lm-mod-hidden)') || document;
+  const said = [...panel.querySelectorAll('.widget-html-content div, .widget-html-content span')]
+    .filter(el => el.children.length === 0 && /Not recomputed/.test(el.textContent))
+    .filter(inView).map(el => el.textContent.trim().slice(0, 80));
+  const dimmed = [...panel.querySelectorAll('.pinlib-chart svg')].filter(inView).filter(svg => {
+    for (let el = svg; el; el = el.parentElement)
+      if (parseFloat(getComputedStyle(el).opacity) < 1) return true;
+    return false; }).length;
+  const charts = [...panel.querySelectorAll('.pinlib-chart svg')].filter(inView).length;
+  return {said, dimmed, charts};
+}"""
+
+
+def test_a_refused_low_field_shows_the_outputs_are_stale_in_view(wb):
+    """A bad value typed into a field far down the controls: the notice atop the
+    outputs is then out of view, so the stale state shows where the user is (the
+    field's message says it) and any chart in view is dimmed."""
+    if wb.spec.low_bad is None:
+        pytest.skip("no low quantity field in this workbook")
+    label, bad, good = wb.spec.low_bad
+    try:
+        wb.type_into(label, bad)
+        wb.settle()
+        loc, _ = wb.shown_control(label)
+        loc.scroll_into_view_if_needed()
+        wb.page.wait_for_timeout(200)
+        wb.screenshot("stale")
+        seen = wb.page.evaluate(_STALE_IN_VIEW)
+        assert seen["said"], f"{label!r} <- {bad!r}: nothing in view says 'Not recomputed'"
+        assert seen["dimmed"] == seen["charts"], seen
+    finally:
+        wb.type_into(label, good)
+        wb.settle()
+    seen = wb.page.evaluate(_STALE_IN_VIEW)
+    assert not seen["said"] and seen["dimmed"] == 0, seen
 
 
 def test_save_as_an_existing_file_asks_before_overwriting(wb, lab):

@@ -935,3 +935,88 @@ def test_crosstalk_explorer_names_the_designs_aggressor_and_its_sliders_units():
     text = info.value.message
     assert "30 µm" in text and "50 µm" in text and "2 mm" in text
     assert "Ω" not in text and "E24" not in text
+
+
+def test_bus_builder_marks_the_parts_the_bus_would_fail(library):
+    """A peripheral the bus as set would fail is still offered, its option says why
+    ("— fails here: up to 100 kHz") and so does the line under the list when it is
+    picked; the marks are the engine's own verdicts: each part offered is added, and
+    the device-speed and supply-range checks fail exactly for the marked ones."""
+    b = BusBuilder(library, peripherals=())
+    marked = set()
+    # Fast-mode at 3.3 V ± 5 %; ± 6 % takes the rail past a 3.135-3.465 V part's range
+    # (the controller's 3.0-3.6 V still holds it); SMBus 100 kHz slows the clock
+    for settings in ({}, {"supply_tolerance": 0.06, "fits_supply": False},
+                     {"protocol": "smbus", "mode": "100k", "supply_tolerance": 0.05}):
+        b.set(**settings)
+        for label, pid in list(b.pick.options):
+            b.pick.value = pid
+            ref = b.add_peripheral(pid)
+            failed = sorted(c.id for _, _, c in b.bus_result.all_checks()
+                            if c.id in ("device-speed", "supply-range") and c.status == "fail")
+            b.remove_peripheral(ref)
+            assert ("— fails here:" in label) == bool(failed), (settings, label, failed)
+            if failed:
+                marked.add((pid, tuple(failed)))
+                assert all(c in b.pick_fit.value for c in failed), b.pick_fit.value
+                assert pid in b.pick_fit.value
+            else:
+                assert b.pick_fit.value == ""
+    # the library's SMBus 100 kHz parts on the 400 kHz bus, and the FPGA bank at ± 6 %
+    assert ("battery-gauge-smbus", ("device-speed",)) in marked
+    assert ("fpga-io-3v3", ("supply-range",)) in marked
+
+
+def _scene_marks(node, marktype: str, out: list) -> list:
+    """The items of each mark of ``marktype`` in a rendered scenegraph."""
+    if isinstance(node, dict):
+        if node.get("marktype") == marktype and node.get("role") == "mark":
+            out.append(node.get("items", []))
+        for item in node.get("items", []):
+            _scene_marks(item, marktype, out)
+    return out
+
+
+def _note_clearance(spec) -> tuple[float, str]:
+    """The rendered edge chart: the least distance from its operating point's note (its
+    text's box, the charts' font at its size) to any curve. [px]"""
+    import numpy as np
+    import vl_convert
+
+    scene = vl_convert.vegalite_to_scenegraph(spec)["scenegraph"]
+    (note,) = [t for ts in _scene_marks(scene, "text", []) for t in ts
+               if " at " in (t.get("text") or "")]
+    w, h = charts.text_width(note["text"], note["fontSize"], bold=True), note["fontSize"]
+    x0 = note["x"] + note.get("dx", 0) - (w if note["align"] == "right" else 0)
+    y0 = note["y"] + note.get("dy", 0) - {"top": 0, "middle": h / 2,
+                                           "bottom": h}[note["baseline"]]
+    least = float("inf")
+    for line in _scene_marks(scene, "line", []):
+        xs, ys = np.array([p["x"] for p in line]), np.array([p["y"] for p in line])
+        t = np.linspace(0.0, 1.0, 50)[:, None]
+        sx, sy = (xs[:-1] + t * np.diff(xs)).ravel(), (ys[:-1] + t * np.diff(ys)).ravel()
+        d = np.hypot(np.maximum(np.maximum(x0 - sx, sx - x0 - w), 0.0),
+                     np.maximum(np.maximum(y0 - sy, sy - y0 - h), 0.0))
+        least = min(least, float(d.min()))
+    return least, note["text"]
+
+
+def test_line_explorer_charts_end_at_the_record_and_keep_the_note_off_the_curves(library):
+    """Workbook 02: the waveform chart's time axis ends where the record does (it ran to
+    18 ns with the record ending at 16, a blank band that read as missing data), and the
+    operating point's note on the edge chart keeps clear of every curve."""
+    import vl_convert
+
+    le = LineExplorer(library, driver=("mcu-3v3", "sclk"),
+                      receivers=[("display-controller-spi", "sclk")], length=0.28,
+                      series="auto")
+    for length in (0.28, 0.1, 0.05, 0.5):
+        le.set(length=length)
+        scene = vl_convert.vegalite_to_scenegraph(le.waves.spec)["scenegraph"]
+        plot_width = scene["items"][0]["width"]
+        last = max(p["x"] for line in _scene_marks(scene, "line", []) for p in line)
+        # common practice, no source: 1 px of rounding; a band wider reads as no data
+        assert plot_width - last <= 1.0, (length, plot_width, last)
+        room, text = _note_clearance(le.edges.spec)
+        # common practice, no source: 3 px between text and a line reads as apart
+        assert room >= 3.0, (length, text, room)

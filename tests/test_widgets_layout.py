@@ -177,6 +177,26 @@ def test_a_refused_supply_leaves_the_figures_and_says_so(library, text, words):
     assert b.figures["supply"].value == 3.0
 
 
+def test_a_refused_field_marks_the_outputs_stale_where_it_is(library):
+    """The notice sits at the top of the outputs, out of view beside a field far down
+    the controls: the field's own message says the outputs are not recomputed, and the
+    outputs (all but the notice) carry the class that dims them, until a valid text."""
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    outputs = b._stale
+    assert b.checks_html in outputs and b.window.widget in outputs[0].children
+    _type(b.pullup_tolerance, "abc")
+    assert "Not recomputed" in b.pullup_tolerance.error_html.value
+    assert all("pinlib-stale" in w._dom_classes for w in outputs)
+    assert "pinlib-held-note" in b.held_html._dom_classes
+    assert ".pinlib-stale" in b.held_html.value  # its style comes with the notice
+    _type(b.supply, "3.3")  # two refused: each says it
+    assert "Not recomputed" in b.supply.error_html.value
+    _type(b.supply, "3.3 V")
+    _type(b.pullup_tolerance, "2 %")
+    assert b.pullup_tolerance.error_html.value == "" and b.held_html.value == ""
+    assert not any("pinlib-stale" in w._dom_classes for w in outputs)
+
+
 def test_quantities_are_read_with_their_units(library):
     b = BusBuilder(library, peripherals=["eeprom-i2c"])
     _type(b.trace.length, "5.5 in")

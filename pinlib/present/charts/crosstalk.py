@@ -22,7 +22,7 @@ from pinlib.present.charts.frame import (
     _title,
     _titled,
     display_scale,
-    log_ticks,
+    spaced_log_ticks,
 )
 from pinlib.present.charts.render import _alt, _data
 from pinlib.present.charts.style import (
@@ -89,7 +89,9 @@ def noise_vs_spacing(spacing, peak, *, allowed, design_spacing, design_peak,
     colour = alt.Color("series:N", scale=_scale_pair(domain, colours),
                        legend=_legend(None, domain, _plot_room(width)))
     lo_s, hi_s = float(np.min(np.append(s[ok], x0))), float(np.max(np.append(s[ok], x0)))
-    ticks = log_ticks(lo_s * fx, hi_s * fx)
+    # ticks whose labels keep clear at this width (fixed 1-2-5 ticks over a few
+    # decades of a narrow chart had every other label hidden by the renderer)
+    ticks = spaced_log_ticks(lo_s * fx, hi_s * fx, _plot_room(width))
 
     def xq(field="s"):
         return _q(field, _title("Spacing, edge to edge", ux), log=True, pad=True,

@@ -24,8 +24,9 @@ from pinlib.present.charts.frame import (
     _unique,
     display_scale,
 )
+from pinlib.present.charts.notes import NOTE_PLACES, note_place
 from pinlib.present.charts.render import _alt, _data, _reuse
-from pinlib.present.charts.style import _HEIGHT, _WIDTH, OPERATING, series_colours
+from pinlib.present.charts.style import _HEIGHT, _WIDTH, OPERATING, series_colours, text_width
 
 if TYPE_CHECKING:  # pragma: no cover - typing only
     import altair as alt
@@ -99,20 +100,24 @@ def edge_vs_load(loads, edge_times, *, points=None, operating=None, series=None,
             for a, b, s, keep in zip(px, py, plabels, okp, strict=True) if keep]
            if okp.any() else None)
     op_rows = ([{"load": _num(op[0] * fx), "t": _num(op[1] * fy), "kind": op[2],
-                 "note": f"{format_si(op[1], 's')} at {format_si(op[0], 'F')}",
-                 "side": _label_side(op, all_x, log_x,
-                                     [(xs[k][ok[k]], ys[k][ok[k]]) for k in range(len(xs))])}]
+                 "note": f"{format_si(op[1], 's')} at {format_si(op[0], 'F')}"}]
                if op else None)
-    known = _reuse(("edge_vs_load", op_rows[0]["side"] if op_rows else None,
-                    x_title, y_title, bool(log_x), bool(log_y),
+    place = None
+    if op_rows is not None:  # the note beside the point, clear of the curves
+        place = note_place((op_rows[0]["load"], op_rows[0]["t"]),
+                           [([r["load"] for r in rows if r["series"] == n],
+                             [r["t"] for r in rows if r["series"] == n]) for n in names],
+                           text_width(op_rows[0]["note"], 11, bold=True),
+                           (_plot_room(width), float(height)), (log_x, log_y))
+    known = _reuse(("edge_vs_load", x_title, y_title, bool(log_x), bool(log_y),
                     tuple(domain), tuple(kinds), tuple(shapes), curves_title, title,
-                    subtitle, width, height),
+                    subtitle, width, height, place),
                    [rows] + ([pts] if pts is not None else [])
                    + ([op_rows] if op_rows is not None else []))
     if known is not None:
         return known
     layers = _layers(rows, pts, op_rows, (x_title, y_title), (log_x, log_y),
-                     (domain, kinds, shapes), curves_title, width)
+                     (domain, kinds, shapes), curves_title, width, place)
     return _titled(_alt().layer(*layers), title, subtitle, width, height)
 
 
@@ -166,7 +171,8 @@ def _operating(operating, log_x: bool, log_y: bool) -> tuple[float, float, str] 
             str(operating[2]) if len(operating) == 3 else "operating point")
 
 
-def _layers(rows, pts, op_rows, titles, logs, legend, curves_title, width) -> list:
+def _layers(rows, pts, op_rows, titles, logs, legend, curves_title, width,
+            place=None) -> list:
     """The curves, the datasheet points and the operating point (with its values
     written beside it), as altair layers."""
     alt = _alt()
@@ -189,63 +195,11 @@ def _layers(rows, pts, op_rows, titles, logs, legend, curves_title, width) -> li
         layers.append(alt.Chart(_data(op_rows)).mark_point(
             filled=True, size=160, opacity=1, color=OPERATING).encode(
             x=x, y=y, shape=shape, tooltip=tips))
-        # its values written beside it: the cross is read on its own, not off a curve
-        # beside it on the side with room, and above or below it when the curves pass
-        # on the other side there: not across them, nor past the plot's edge
-        h, v = op_rows[0]["side"].split("-")
+        # its values written beside it, where no curve passes (note_place): the cross
+        # is read on its own, not off a curve
+        align, baseline, dx, dy = place or NOTE_PLACES[0]
         layers.append(alt.Chart(_data(op_rows)).mark_text(
-            align={"left": "right", "right": "left"}.get(h, "center"),
-            dx={"left": -6, "right": 9}.get(h, 0),
-            baseline={"below": "top", "above": "bottom"}.get(v, "middle"),
-            dy={"below": 9, "above": -9}.get(v, 0), fontSize=11, fontWeight="bold",
+            align=align, baseline=baseline, dx=dx, dy=dy, fontSize=11, fontWeight="bold",
             color=OPERATING).encode(x=x, y=y, text=alt.Text("note:N")))
     return layers
 
-
-#: Beyond this fraction of the load axis the operating point's values are not written on
-#: its right: they would run past the plot ("4.04 ns at 59.8 pF" is about a third of a
-#: 330-pixel plot, the fraction the label is taken to span).
-_LABEL_LEFT_FROM = 0.6
-_LABEL_SPAN = 0.35
-
-
-def _label_side(op, all_x: np.ndarray, log_x: bool, curves) -> str:
-    """Where the operating point's values are written, ``"H-V"``: H ``right`` of it,
-    ``center`` on it or ``left`` of it (not ``right`` in the right part of the load axis,
-    the data's span as the axis is), V ``below`` or ``above`` it where the curves over
-    the label's width all pass above it or all below, else ``middle``; the first side in
-    that order where the curves leave room.  ``curves``: each curve's (loads, times)."""
-    load, t = op[0], op[1]
-    xs = all_x[np.isfinite(all_x) & ((all_x > 0) if log_x else True)]
-    if not xs.size or not np.isfinite(load) or (log_x and load <= 0):
-        return "right-middle"
-    lo, hi = (np.log10(xs.min()), np.log10(xs.max())) if log_x else (min(0.0, xs.min()),
-                                                                      xs.max())
-    if not hi > lo:
-        return "right-middle"
-    at = ((np.log10(load) if log_x else load) - lo) / (hi - lo)
-    half = _LABEL_SPAN / 2
-    sides = ([] if at > _LABEL_LEFT_FROM else ["right"]) + (
-        ["center"] if half <= at <= 1 - half else []) + ["left"]
-    for h in sides:
-        a, b = {"right": (at, at + _LABEL_SPAN), "left": (at - _LABEL_SPAN, at)}.get(
-            h, (at - half, at + half))
-        seen = []
-        for cx, cy in curves:  # each curve's times over the label's width, ends included
-            fx = ((np.log10(np.where(cx > 0, cx, np.nan)) if log_x else cx) - lo) / (hi - lo)
-            keep = np.isfinite(fx) & np.isfinite(cy)
-            fx, fy = fx[keep], cy[keep]
-            if fx.size < 2:
-                continue
-            order = np.argsort(fx)
-            fx, fy = fx[order], fy[order]
-            inside = fy[(fx >= a) & (fx <= b)]
-            ends = [np.interp(e, fx, fy) for e in (a, b) if fx[0] <= e <= fx[-1]]
-            seen += list(inside) + ends
-        if not seen:
-            return f"{h}-middle"
-        if t < min(seen):
-            return f"{h}-below"
-        if t > max(seen):
-            return f"{h}-above"
-    return f"{sides[0]}-middle"

@@ -163,20 +163,6 @@ def _axis(title: str, *, flush: bool = True, values=None):
     return alt.Axis(**props)
 
 
-def log_ticks(lo: float, hi: float) -> list[float]:
-    """Ticks 1, 2 and 5 of each decade between ``lo`` and ``hi`` (display units): a log
-    axis whose own ticks (2, 3, 4, 5 of a decade) run their labels together."""
-    if not (lo > 0 and hi >= lo and math.isfinite(hi)):
-        return []
-    out = []
-    for d in range(math.floor(math.log10(lo)) - 1, math.ceil(math.log10(hi)) + 1):
-        for m in (1.0, 2.0, 5.0):
-            v = float(f"{m * 10.0 ** d:.12g}")
-            if lo * (1 - 1e-9) <= v <= hi * (1 + 1e-9):
-                out.append(v)
-    return out
-
-
 #: Mantissas of a decade's ticks, densest first; then one tick every few decades.
 _DECADE_TICKS = ((1, 2, 3, 4, 5, 6, 7, 8, 9), (1, 2, 5), (1, 3), (1,))
 _DECADE_STEPS = (2, 3, 5, 10, 20, 50, 100)
@@ -270,13 +256,16 @@ def spaced_log_ticks(lo: float, hi: float, length: float, *, along: bool = True,
 
 
 def _q(field: str, title: str, *, log: bool = False, channel: str = "x", pad: bool = False,
-       ticks=None):
+       ticks=None, nice: bool = True):
     """A quantitative position channel; ``pad`` keeps the outermost values ``_PAD_PX``
-    inside the frame (a limit line is never drawn on the frame itself)."""
+    inside the frame (a limit line is never drawn on the frame itself); ``nice=False``
+    ends the axis at the data (no blank band after a record that ends between ticks)."""
     alt = _alt()
     props = {}
     if log:
         props["type"] = "log"
+    if not nice:
+        props["nice"] = False
     if pad:
         props.update(padding=_PAD_PX, nice=False)
         if not log:

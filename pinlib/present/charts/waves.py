@@ -144,7 +144,9 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
         layers.append(alt.Chart(_data(vdd_rows))
                       .mark_rule(strokeDash=[2, 3]).encode(
                           y=_q("v", y_title, channel="y", pad=True), color=colour))
+    # the time axis ends where the record does (a "nice" end past it drew a blank band
+    # that read as missing data)
     layers.append(alt.Chart(_data(rows)).mark_line(strokeWidth=1.8).encode(
-        x=_q("t", x_title), y=_q("v", y_title, channel="y", pad=True), color=colour,
+        x=_q("t", x_title, nice=False), y=_q("v", y_title, channel="y", pad=True), color=colour,
         detail=alt.Detail("series:N")))
     return _titled(alt.layer(*layers), title, subtitle, width, height)

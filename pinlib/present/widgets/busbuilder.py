@@ -15,12 +15,12 @@ from pinlib.core.errors import InputError, PinlibError, WriteError
 from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS, protocol
 from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import atomic_write, tomllib
-from pinlib.core.valueclass import value_class
 from pinlib.engines.dispatch import check_design
 from pinlib.library import load_library
 from pinlib.library.loader import Library
 from pinlib.model.design import MODES, design_from_text
 from pinlib.present import charts, plotdata
+from pinlib.present.widgets.benchreading import BenchReading
 from pinlib.present.widgets.choices import choice_line, with_button_below
 from pinlib.present.widgets.common import (
     ChartView,
@@ -64,43 +64,13 @@ from pinlib.present.widgets.markup import (
     notice,
     status_line,
 )
+from pinlib.present.widgets.partfit import unfit_label, unfit_on_bus, unfit_sentence
 
 #: The pin functions of an open-drain bus (SDA and SCL), which every part on it needs.
 _OPEN_DRAIN_FUNCTIONS = tuple(dict.fromkeys(fn for name in OPEN_DRAIN_PROTOCOLS
                                             for fn in protocol(name).functions))
 
 # =========================================================================== bus builder
-
-
-@value_class(frozen=True)
-class BenchReading:
-    """The bench panel's answer: a rise time measured on the board turned into Cb.
-
-    Attributes
-    ----------
-    t_measured : float
-        The rise time read on the oscilloscope. [s]
-    c_probe : float
-        The probe's capacitance. [F]
-    levels : tuple of float
-        The measuring levels as fractions of VDD. [1]
-    rp : float
-        The effective pull-up on the line (the engine's nominal value). [Ω]
-    cb : float
-        Bus capacitance without the probe. [F]
-    rise : float
-        The rise time between the same levels without the probe. [s]
-    cb_model : float
-        The engine's bus capacitance of the line, for comparison. [F]
-    """
-
-    t_measured: float
-    c_probe: float
-    levels: tuple
-    rp: float
-    cb: float
-    rise: float
-    cb_model: float
 
 
 class BusBuilder(_Panel):
@@ -238,6 +208,8 @@ class BusBuilder(_Panel):
         self.pick = W.Dropdown(options=[], description="Peripheral", style=style(),
                                layout=field_layout())
         self.pick_note = note_widget()
+        self.pick_fit = note_widget()  # why the part picked would fail the bus as set
+        self._pick_unfit: dict = {}
         self.add_button = W.Button(description="Add", layout=button_layout())
         self.placed = W.Select(options=[], rows=6, description="Placed", style=style(),
                                layout=field_layout())
@@ -287,6 +259,7 @@ class BusBuilder(_Panel):
     def _wire(self) -> None:
         """Observers, buttons and the setters of :meth:`set`."""
         self.protocol.observe(self._protocol_changed, names="value")
+        self.pick.observe(self._show_pick_fit, names="value")
         for c in (self.category, self.fits_supply, self.function, self.controller):
             c.observe(self._filters_changed, names="value")
         self._watch(self.mode, self.pullup_mode, self.pullup, self.title)
@@ -347,11 +320,29 @@ class BusBuilder(_Panel):
             set_options(self.controller, ctl, self.controller.value, what="Controller",
                         said=self.controller_note,
                         unfit=lambda k: self._unfit(parts[k], category=False))
-            per = [(self._label(k, p), k) for k, p in parts.items()
-                   if self._fits(p, category=True)]
+            self._offer_peripherals(parts)
+        self._changed()
+
+    def _offer_peripherals(self, parts: dict | None = None) -> None:
+        """The peripherals the filters let through; one the bus as set would fail is
+        still offered, marked with why (:mod:`~pinlib.present.widgets.partfit`: the
+        engine's device-speed and supply-range limits), and said under the list when
+        picked."""
+        parts = self._bus_parts() if parts is None else parts
+        bus = {"protocol": self.protocol.value, "mode": self.mode.value,
+               "supply": self.supply.value, "tolerance": self.supply_tolerance.value}
+        self._pick_unfit = {k: unfit_on_bus(p, **bus) for k, p in parts.items()
+                            if self._fits(p, category=True)}
+        per = [(unfit_label(self._label(k, parts[k]), u), k)
+               for k, u in self._pick_unfit.items()]
+        if per != list(self.pick.options):
             set_options(self.pick, per, self.pick.value, what="Peripheral",
                         said=self.pick_note)
-        self._changed()
+        self._show_pick_fit()
+
+    def _show_pick_fit(self, change=None) -> None:
+        why = unfit_sentence(self.pick.value, self._pick_unfit.get(self.pick.value, []))
+        self.pick_fit.value = notice(e(why)) if why else ""
 
     def _protocol_changed(self, change=None) -> None:
         with self._hold():
@@ -443,6 +434,8 @@ class BusBuilder(_Panel):
 
     def _recompute(self) -> None:
         """Rebuild the design from the controls, evaluate it, redraw."""
+        with self._hold():
+            self._offer_peripherals()  # the bus as set: which parts would fail it
         try:
             text = self.design_text()
             design = _load(text, self.library)
@@ -595,7 +588,7 @@ class BusBuilder(_Panel):
             heading("Parts"), self.category, self.fits_supply, self.function,
             self.controller, choice_line(self.controller), self.controller_note,
             with_button_below(self.pick, self.add_button), choice_line(self.pick),
-            self.pick_note,
+            self.pick_fit, self.pick_note,
             with_button_below(self.placed, self.remove_button),
             heading("Trace"), self.trace.box, self.extra_capacitance.box,
             heading("Pull-up"), self.pullup_mode, self.pullup, self.pullup_tolerance.box,

@@ -17,7 +17,9 @@ A value with a unit is typed into a :class:`QuantityField` and read by
 :func:`pinlib.core.quantity.parse` ("4.7 kΩ" is refused where a voltage belongs, a bare number
 is refused for its missing unit, a value outside the field's range is refused and never
 clamped).  The refusal is shown under the field and the panel does not recompute: what it
-shows stays that of the last valid inputs, and a notice above the figures says so.
+shows stays that of the last valid inputs, and a notice above the figures says so; as
+that notice may be out of view beside a field far down, the field's message says it too
+and the outputs are dimmed until the text is valid.
 """
 
 from __future__ import annotations
@@ -37,6 +39,7 @@ from pinlib.core.eseries import values_in_range
 from pinlib.core.quantity import format_si, parse
 from pinlib.present import charts
 from pinlib.present.widgets.markup import (
+    BLOCK,
     caution_html,
     e,
     error_html,
@@ -461,6 +464,15 @@ class ChartView:
 
 
 
+#: While a field is refused the outputs are dimmed (all but the notice saying so), and
+#: the field's message says the outputs are not recomputed.
+_STALE_STYLE = ("<style>.pinlib-stale > :not(.pinlib-held-note), .pinlib-stale.widget-html"
+                "{opacity:.45}</style>")
+_HELD_LINE = (f'<div class="pinlib-held-line" style="{BLOCK};font-size:12px;color:#4a4a4a">Not '
+              "recomputed: the figures and charts (dimmed) are those of the last valid "
+              "inputs.</div>")
+
+
 class _Panel:
     """What every workbench class shares: batching of changes, the error shown, setters,
     quantity fields held back while one is refused."""
@@ -473,6 +485,8 @@ class _Panel:
         self.fields: dict[str, QuantityField] = {}
         self.status_html = W.HTML(layout=block_layout())
         self.held_html = W.HTML(layout=block_layout())
+        self.held_html.add_class("pinlib-held-note")
+        self._stale: list = []  # what _columns drew the outputs in (dimmed while held)
 
     @contextlib.contextmanager
     def _hold(self):
@@ -499,14 +513,18 @@ class _Panel:
     def _show_held(self) -> bool:
         """Say which fields hold the panel back; True while one does."""
         refused = [f for f in self.fields.values() if f.error is not None]
+        for box in self._stale:  # the outputs dimmed (the style comes with the notice)
+            (box.add_class if refused else box.remove_class)("pinlib-stale")
         if not refused:
             self.held_html.value = ""
             return False
         names = ", ".join(f"<b>{e(f.description)}</b>" for f in refused)
-        self.held_html.value = notice(
+        self.held_html.value = _STALE_STYLE + notice(
             f"Not recomputed: {names} {'is' if len(refused) == 1 else 'are'} not valid (see "
             "the message under the field). The figures and charts below are those of the "
             "last valid inputs.")
+        for f in refused:  # said where the user is looking, too: the outputs may be far up
+            f.error_html.value = inline_error(f.error) + _HELD_LINE
         return True
 
     def _watch(self, *controls) -> None:
@@ -577,7 +595,8 @@ class _Panel:
                  basis: int = 560) -> W.VBox:
         """The usual arrangement: the controls' column, the outputs beside or under it,
         then ``below`` across the whole width."""
-        row = W.Box([W.VBox(list(controls), layout=column_layout()),
-                     W.VBox(list(outputs), layout=outputs_layout(basis))],
+        out = W.VBox(list(outputs), layout=outputs_layout(basis))
+        self._stale = [out, *below]
+        row = W.Box([W.VBox(list(controls), layout=column_layout()), out],
                     layout=row_layout())
         return W.VBox([row, *below], layout=W.Layout(width="100%", max_width="100%"))
