@@ -14,7 +14,7 @@ import re
 
 from pinlib.core import labels
 from pinlib.core.errors import PinlibError
-from pinlib.model.result import CAUTION, BusResult, Group, figure_text, margin_text, percent_text
+from pinlib.model.result import CAUTION, BusResult, Group, figure_text, margin_text
 from pinlib.present import charts
 from pinlib.present.report import format_value
 
@@ -81,12 +81,6 @@ def inline_error(err: PinlibError | None) -> str:
         text += f" ({err.hint})"
     return (f'<span style="{BLOCK};display:block;font-size:12px;color:{charts.FAIL};'
             f'font-weight:600">{e(text)}</span>')
-
-
-def margin(m) -> str:
-    if m is None:
-        return ""
-    return percent_text(m)
 
 
 def _caption(text: str) -> str:
