@@ -146,15 +146,24 @@ CASES = [pytest.param(name, rs, which, id=f"{name}-rs{rs:g}-{which}")
 @needs_ngspice
 @pytest.mark.parametrize(("name", "r_series", "which"), CASES)
 def test_tree_matches_ngspice(name, r_series, which):
-    route = ROUTES[name]
+    compared(ROUTES[name], r_series, which)
+
+
+def compared(route: Route, r_series: float, which: str, ramp: float = T_RAMP,
+             lump: bool = False):
+    """Every receiver's edge and overshoot from ngspice and from pinlib, the driver at
+    ``which``, held to the case set's bounds; returns the (edge, reference edge)."""
     source = driver_node(route, which)
     receivers = [i for i in route.devices() if i != source]
-    stop = t_stop(route)
-    ref_edge, ref_over = spice_figures(route, source, R_OUT + r_series, receivers, stop)
-    edge, over = pinlib_figures(route, source, R_OUT + r_series, receivers, stop)
+    stop = t_stop(route, ramp)
+    ref_edge, ref_over = spice_figures(route, source, R_OUT + r_series, receivers, stop,
+                                       ramp=ramp)
+    edge, over = pinlib_figures(route, source, R_OUT + r_series, receivers, stop,
+                                lump=lump, ramp=ramp)
     assert np.all(np.isfinite(ref_edge))
     assert edge == pytest.approx(ref_edge, rel=EDGE_REL_TOL)
     assert over == pytest.approx(ref_over, abs=OVERSHOOT_TOL)
+    return edge, ref_edge
 
 
 # Sections far shorter than the ramp (lengths in mm, invented): stubs of 0.3 and 0.6 mm
@@ -183,16 +192,7 @@ def test_short_sections_lumped_match_ngspice(name, r_series, which):
     route = SHORT[name]
     _, _, lumped = wf.lump_short(route.lines(), route.caps, SLOW_RAMP)
     assert len(lumped) == {"tiny-stubs": 2, "tiny-trunk": 1, "tiny-stub-end": 1}[name]
-    source = driver_node(route, which)
-    receivers = [i for i in route.devices() if i != source]
-    stop = t_stop(route, SLOW_RAMP)
-    ref_edge, ref_over = spice_figures(route, source, R_OUT + r_series, receivers, stop,
-                                       ramp=SLOW_RAMP)
-    edge, over = pinlib_figures(route, source, R_OUT + r_series, receivers, stop,
-                                lump=True, ramp=SLOW_RAMP)
-    assert np.all(np.isfinite(ref_edge))
-    assert edge == pytest.approx(ref_edge, rel=EDGE_REL_TOL)
-    assert over == pytest.approx(ref_over, abs=OVERSHOOT_TOL)
+    edge, ref_edge = compared(route, r_series, which, SLOW_RAMP, lump=True)
     # the bound LUMP_FRACTION's notes state
     assert edge == pytest.approx(ref_edge, rel=5e-3)
 
