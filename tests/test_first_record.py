@@ -119,3 +119,19 @@ def test_solve_edges_keeps_the_first_records():
     for r, got in zip(reqs, kept, strict=True):
         _, unit, _ = waves._unit_edge(LONG, *r)
         assert got is not None and np.array_equal(got[1], unit)  # first record or whole
+
+
+def test_sections_of_one_impedance_are_solved_as_one_line():
+    # physics: where two lossless sections of one Z0 meet with no pin between them the
+    # reflection coefficient (Z2 - Z1) / (Z2 + Z1) is 0, so they are one line of the
+    # summed delay.  The solver's own answer for the two agrees with the joined line's,
+    # and edge_grid hands the solver the joined one (32 sections of 1 cm cost as one).
+    t = np.arange(20001) * 1e-12
+    two = wf.distributed_response(t, 1.0, 1e-9, 20.0, [(50.0, 0.3e-9), (50.0, 0.5e-9)],
+                                  5e-12).v
+    one = wf.distributed_response(t, 1.0, 1e-9, 20.0, [(50.0, 0.8e-9)], 5e-12).v
+    assert np.max(np.abs(two - one)) < 1e-9
+    g = Stretch(0.01, 50.0, 60e-12, 1.2e-12, "g")
+    h = Stretch(0.01, 65.0, 60e-12, 0.92e-12, "h")
+    grid = waves.edge_grid([g, g, h, g, g], 20.0, 1e-9, 5e-12, True)
+    assert grid.sections == [(50.0, 120e-12), (65.0, 60e-12), (50.0, 120e-12)]

@@ -70,10 +70,15 @@ devices = [
 """)
 
 
-def _spi(n: int, sections: int = 1) -> str:
+def _spi(n: int, sections: int = 1, alternating: bool = False) -> str:
+    """An SPI bus of ``n`` devices whose SCLK and COPI are ``sections`` stretches of 1 cm,
+    of one geometry (which the solver joins into one line), or (``alternating``) every
+    other one a 50 Ω stretch given per length, so each junction reflects."""
     devices = "".join(f'  {{ ref = "P{i}", part = "nor-flash-spi" }},\n' for i in range(n - 1))
     stretch = '{ length = "1 cm", geometry = "g" }'
-    line = f'{{ sections = [{", ".join([stretch] * sections)}], series_resistor = "auto" }}'
+    other = '{ length = "1 cm", capacitance = "1.2 pF/cm", delay = "60 ps/cm" }'
+    chain = [other if alternating and k % 2 else stretch for k in range(sections)]
+    line = f'{{ sections = [{", ".join(chain)}], series_resistor = "auto" }}'
     return _design(f"""
 [[bus]]
 id = "s"
@@ -194,6 +199,11 @@ def run(repeats: int = 3, quick: bool = False) -> list[Result]:
                             repeats, linear=False))
         out.append(_scaling("SPI line: 32 sections, auto resistor", _spi(2, 8), _spi(2, 32),
                             4, tmp, repeats))
+        # the same line 4x as long with a reflection at each junction: a record 4x as
+        # long over 4x the sections, quadratic by its nature (printed without a target)
+        out.append(_scaling("SPI line: 32 sections, alternating impedance",
+                            _spi(2, 8, True), _spi(2, 32, True), 4, tmp, repeats,
+                            linear=False))
         # above whatif.SENSITIVITY_BOARDS (100,000), whose draws a run keeps
         out.append(_monte_carlo(tmp, 120_000 if quick else 200_000, 4))
     return out

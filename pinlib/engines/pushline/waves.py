@@ -290,7 +290,7 @@ def edge_grid(stretches: Sequence[Stretch], r_source: float, t_ramp: float, c_fa
     # delay does
     short = wf.LUMP_FRACTION * t_ramp
     solved = [s.td > 0.0 and not s.td < short for s in stretches]
-    sections = [(s.z0, s.td) for s, x in zip(stretches, solved, strict=True) if x]
+    sections = _joined([(s.z0, s.td) for s, x in zip(stretches, solved, strict=True) if x])
     c_lumped_far = c_far + sum(s.td / s.z0 if s.td > 0.0 else s.c
                                for s, x in zip(stretches, solved, strict=True) if not x)
     delays = [td for _, td in sections]
@@ -315,6 +315,19 @@ def edge_grid(stretches: Sequence[Stretch], r_source: float, t_ramp: float, c_fa
         return EdgeGrid(t, sections, c_lumped_far, c_total, distributed, t_end, t.size, 0)
     return EdgeGrid(t, sections, c_lumped_far, c_total, distributed, t_end, n_first,
                     math.ceil(_REST_DELAYS * sum(delays) / dt))
+
+
+def _joined(sections: list) -> list:
+    """Neighbouring sections of one impedance as one line of their summed delay: with no
+    pin between them (a chain's pins are at its far end) nothing reflects where they
+    meet, so the line is the same, and the solver's work grows with its sections."""
+    out: list = []
+    for z0, td in sections:
+        if out and out[-1][0] == z0:
+            out[-1] = (z0, out[-1][1] + td)
+        else:
+            out.append((z0, td))
+    return out
 
 
 def _same_step(t: np.ndarray, n: int) -> int | None:
