@@ -2380,6 +2380,22 @@ def _(env):
     return err
 
 
+def test_a_run_of_one_impedance_setting_the_step_names_the_line(tmp_path, monkeypatch,
+                                                                  capsys):
+    # two 1 mm stretches of one impedance are solved as one 2 mm line (waves._joined):
+    # the step is its delay, no single stretch's, so the error names the line rather
+    # than a stretch with a least length that is not its own
+    env = Env(tmp_path, monkeypatch, capsys)
+    mm = '{ length = "1 mm", capacitance = "1.1 pF/cm", delay = "58 ps/cm" }'
+    body = SPI_BUS.replace(
+        'lines.sclk = { length = "3 cm", geometry = "g" }',
+        f'lines.sclk = {{ sections = [{mm}, {mm}, '
+        '{ part = "twisted-pair-cable", length = "1000 m" }] }')
+    err = _fails(lambda e: _check(e.design(body)), env)
+    assert "the line's waveform would need" in err.message
+    assert err.field == "bus.s.lines.sclk"
+
+
 @case("NO_FINITE_RECORD")
 def _(env):
     # the design loader refuses a geometry with no impedance; a NaN delay reaching the

@@ -162,10 +162,12 @@ def _steps_error(exc: _TooManySteps, line: Line, signal: str, bus_id) -> InputEr
     stretches = line_stretches(line)
     # the section solved as a line whose delay the step divides (a shorter one is lumped)
     timed = [(abs(s.td - exc.td), i) for i, s in enumerate(stretches) if s.td > 0]
-    i = min(timed, default=(math.nan, -1))[1]
+    gap, i = min(timed, default=(math.nan, -1))
     td = stretches[i].td if i >= 0 else math.nan
     loc = line.sections[i].loc if 0 <= i < len(line.sections) else ()
-    if loc and td <= exc.dt * (1 + 1e-9):  # the section's delay is the step
+    # (a run of stretches of one impedance is solved as one line, waves._joined: when
+    # its summed delay set the step, no one stretch did, and the line is named)
+    if loc and gap <= 1e-9 * td and td <= exc.dt * (1 + 1e-9):  # its delay is the step
         s = line.sections[i]
         # below this length the delay, the step, is under the record over MAX_TIME_STEPS
         shortest = _round_up(s.length * (exc.t_end / MAX_TIME_STEPS) / td)
