@@ -456,6 +456,24 @@ def test_line_with_and_without_termination(line):
     line.set(series="auto")
 
 
+def test_line_series_slider_never_shows_a_resistor_not_in_use(line):
+    # auto chose 27 Ω on a long line; on a short one it chooses none, and the disabled
+    # slider kept reading "27 Ω" beside waveforms labelled "no series R"
+    line.set(series="auto", length=0.28)
+    assert line.figures["series_resistor"].value > 0
+    assert line.series.readout and line.series.description == "Rs (E24)"
+    assert line.series.value == line.figures["series_resistor"].value
+    line.set(length=0.03)
+    assert line.figures["series_resistor"].value == 0.0
+    assert not line.series.readout and line.series.description == "Rs: none"
+    assert set(line.wave_data.traces) == {"rise, no series R", "fall, no series R"}
+    line.set(series="none")
+    assert not line.series.readout
+    line.set(series=33.0)
+    assert line.series.readout and line.series.description == "Rs (E24)"
+    line.set(series="auto", length=0.28)
+
+
 def test_line_charts_follow_the_length(line):
     line.set(series="auto", length=0.10)
     edges, waves = line.edges.data(), line.waves.data()

@@ -356,11 +356,16 @@ class LineExplorer(_Panel):
 
     def _show_series(self) -> None:
         """The Rs slider shows the resistor in use: with ``auto`` the engine's choice (the
-        slider then disabled), with ``none`` disabled."""
+        slider then disabled), with ``none`` disabled.  Where no resistor is in use (``none``,
+        or ``auto`` choosing none) it says so and hides its value: it showed the last one
+        ``auto`` had chosen (27 Ω) beside waveforms with no series R."""
         mode = self.series_mode.value
         self.series.disabled = mode != "fixed"
         rs = self.figures.get("series_resistor")
-        if mode == "auto" and rs is not None and rs.value:
+        used = mode == "fixed" or (mode == "auto" and rs is not None and bool(rs.value))
+        self.series.readout = used
+        self.series.description = "Rs (E24)" if used else "Rs: none"
+        if mode == "auto" and used:
             with self._hold():
                 for _, v in self.series.options:
                     if math.isclose(v, float(rs.value), rel_tol=1e-9):
