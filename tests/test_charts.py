@@ -538,6 +538,19 @@ def test_timing_budget_spec():
                                                        charts.LIMIT})
 
 
+def test_timing_budget_names_an_engine_path_as_the_checks_table_does():
+    # the engine's paths are "<check id> <subject>": the bar read "copi-setup U12" above
+    # a table row "COPI setup"; a path that is no check id is shown as given
+    chart = charts.timing_budget([("copi-setup U12", "flight", 1e-9),
+                                  ("cipo-hold U2", "flight", 2e-9),
+                                  ("my path", "flight", 1e-9)], available=20e-9)
+    names = _layers(chart)[2]["data"]["values"]
+    assert [(r["path"], r["name"]) for r in names] == [
+        ("copi-setup U12", "COPI setup U12"), ("cipo-hold U2", "CIPO hold U2"),
+        ("my path", "my path")]
+    assert _layers(chart)[2]["encoding"]["text"]["field"] == "name"
+
+
 def test_timing_budget_per_path_available_status_and_errors():
     chart = charts.timing_budget(_BUDGET_ROWS,
                                  available={"COPI setup at U7": 20 * NANO, "CIPO setup": 21 * NANO},
