@@ -27,6 +27,7 @@ import tomlkit
 from tomlkit.items import InlineTable, Table
 
 from pinlib.core import messages as M
+from pinlib.core.commandtext import continued_lines
 from pinlib.core.errors import InputError, LibraryError, PinlibError, WriteError
 from pinlib.core.tomlfile import atomic_write, file_lock, line_index, line_of, tomllib
 from pinlib.library import loader
@@ -103,15 +104,9 @@ def _comment(text: str) -> list[str]:
 
 def _command_comment(words: list[str]) -> list[str]:
     """A command as comment lines of at most :data:`COMMENT_WIDTH` columns, each line
-    but the last continued with `` \\`` (``words``: the pieces kept whole)."""
-    lines, line = [], "#   " + words[0]
-    for word in words[1:]:
-        if len(line) + len(word) + 3 > COMMENT_WIDTH:  # a space, the word, " \\" after it
-            lines.append(line + " \\")
-            line = "#     " + word
-        else:
-            line += " " + word
-    return lines + [line]
+    but the last continued with `` \\`` (``words``: the pieces kept whole;
+    :func:`pinlib.core.commandtext.continued_lines`)."""
+    return continued_lines("#   " + words[0], words[1:], COMMENT_WIDTH, "#     ")
 
 
 def new_part(library: loader.Library, new_id: str, from_class: str,

@@ -22,6 +22,8 @@ import re
 import sys
 import textwrap
 
+from pinlib.core.commandtext import continued_lines
+
 __all__ = ["DEFAULT_WIDTH", "MIN_WIDTH", "columns", "width", "use_colour", "status_word", "wrap",
            "fitted", "shell_word", "shown_path"]
 
@@ -129,14 +131,7 @@ def fitted_command(head: str, words: list[str], stream=None) -> str:
     cols = table_width(stream)
     if not cols or len(line) <= cols:
         return line
-    lines, cur = [], head
-    for word in words:
-        if len(cur) + len(word) + 3 > cols and cur.strip():  # a space, the word, " \\"
-            lines.append(cur + " \\")
-            cur = "    " + word
-        else:
-            cur += " " + word
-    return "\n".join(lines + [cur])
+    return "\n".join(continued_lines(head, words, cols, "    "))
 
 
 #: The characters a shell word keeps unquoted: ``shlex.quote``'s (``\w`` in ASCII and
