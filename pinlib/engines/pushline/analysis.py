@@ -84,10 +84,10 @@ class LineAnalysis:
     @property
     def delay(self) -> float:
         """One-way delay of the line; of a route, the longest from a driver's point to any
-        point of it (:func:`farthest_from`: a line fed from its middle is not as long as
-        its two arms end to end). [s]"""
+        point of it (:meth:`RouteNet.farthest_delay`: a line fed from its middle is not as
+        long as its two arms end to end). [s]"""
         if self.net is not None:
-            return farthest_from(self.net, [d.ref for d in self.drivers])
+            return self.net.farthest_delay([self.net.node(d.ref) for d in self.drivers])
         return sum(s.td for s in self.stretches)
 
     @property
@@ -117,20 +117,6 @@ class LineAnalysis:
             kept = _case(self, case.driver, 0.0)
         self.unterminated = {**(self.unterminated or {}), ref: kept}
         return kept
-
-
-def farthest_from(net: RouteNet, refs: Sequence[str]) -> float:
-    """The longest one-way delay from the point of any of ``refs`` to any point of the
-    route (the whole tree's diameter when ``refs`` is empty). [s]
-
-    In a tree whose stretches have no negative delay, the point farthest from any point
-    is an end of a longest path (a diameter), so three walks of the tree serve every
-    driver: from the first point to one end, from that end to the other, and back."""
-    d0 = net.delays_from(0)
-    da = net.delays_from(max(range(len(d0)), key=d0.__getitem__))
-    db = net.delays_from(max(range(len(da)), key=da.__getitem__))
-    nodes = [net.node(r) for r in refs] or range(len(da))
-    return max(max(da[n], db[n]) for n in nodes)
 
 
 def _others(pins: Sequence[Endpoint], driver: Endpoint) -> list[Endpoint]:

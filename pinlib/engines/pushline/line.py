@@ -411,10 +411,6 @@ def _route_net(route, stretches, anchor: str | None = None):
     delay from ``anchor``, the bus's controller, when it is on the line: the same
     whichever way the route is written, and the far end of the simple form from the
     controller.  Without one, the farthest from the route's first point."""
-    from pinlib.engines.pushline.routes import RouteNet, route_net
+    from pinlib.engines.pushline.routes import route_net
 
-    net = route_net(route, stretches)
-    if anchor is None or anchor not in net.names:
-        return net
-    d = net.delays_from(net.node(anchor))
-    return RouteNet(net.names, net.sections, max(range(len(d)), key=d.__getitem__))
+    return route_net(route, stretches, anchor)

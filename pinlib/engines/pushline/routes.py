@@ -57,8 +57,8 @@ class RouteNet:
     sections : tuple of (int, int, Stretch)
         Each stretch of the route between its two nodes, in the route's order. [1]
     far : int
-        The node farthest in delay from the route's first point (the line's
-        ``extra_capacitance`` sits there). [1]
+        The node farthest in delay from the route's anchor, the bus's controller, or
+        else its first point (the line's ``extra_capacitance`` sits there). [1]
     """
 
     names: tuple[str, ...]
@@ -86,15 +86,34 @@ class RouteNet:
                     todo.append(m)
         return out
 
+    def farthest_node(self, start: int) -> tuple[int, list[float]]:
+        """The node farthest in delay from node ``start``, and the delays from it to
+        every node (:meth:`delays_from`). [1, s]"""
+        d = self.delays_from(start)
+        far = max(range(len(d)), key=d.__getitem__)
+        return far, d
+
     @property
     def longest_delay(self) -> float:
         """The largest one-way delay between two points of the tree (its diameter). [s]"""
-        d0 = self.delays_from(0)
-        far = max(range(len(d0)), key=d0.__getitem__)
-        return max(self.delays_from(far))
+        end, _ = self.farthest_node(0)
+        return max(self.delays_from(end))
+
+    def farthest_delay(self, nodes: Sequence[int]) -> float:
+        """The longest one-way delay from any of ``nodes`` to any point (the diameter for
+        none). [s]
+
+        In a tree whose stretches have no negative delay, the point farthest from any
+        point is an end of a longest path, so three walks serve every node: from the
+        first point to one end, from that end to the other, and back."""
+        a, _ = self.farthest_node(0)
+        b, da = self.farthest_node(a)
+        db = self.delays_from(b)
+        return max(max(da[n], db[n]) for n in (nodes or range(len(da))))
 
 
-def route_net(points: Sequence[tuple[str, str]], stretches: Sequence[Stretch]) -> RouteNet:
+def route_net(points: Sequence[tuple[str, str]], stretches: Sequence[Stretch],
+              anchor: str | None = None) -> RouteNet:
     """The tree of a line's route.
 
     Parameters
@@ -103,6 +122,10 @@ def route_net(points: Sequence[tuple[str, str]], stretches: Sequence[Stretch]) -
         The (from, to) points of each stretch (:attr:`pinlib.model.design.Line.route`). [1]
     stretches : sequence of Stretch
         The electrical data of each stretch, index by index. [1]
+    anchor : str, optional
+        The point the far point (:attr:`RouteNet.far`) is the farthest from in delay:
+        the bus's controller, so that it is the same whichever way the route is written;
+        the route's first point where it is None or not on the route. [1]
 
     Returns
     -------
@@ -116,8 +139,8 @@ def route_net(points: Sequence[tuple[str, str]], stretches: Sequence[Stretch]) -
     secs = tuple((names.index(a), names.index(b), s)
                  for (a, b), s in zip(points, stretches, strict=True))
     net = RouteNet(tuple(names), secs, 0)
-    d = net.delays_from(0)
-    return RouteNet(net.names, secs, max(range(len(d)), key=d.__getitem__))
+    far, _ = net.farthest_node(names.index(anchor) if anchor in names else 0)
+    return RouteNet(net.names, secs, far)
 
 
 def node_caps(net: RouteNet, pins: dict, extra_c: float) -> list[float]:
