@@ -242,7 +242,7 @@ def _lumped_note(a: LineAnalysis, notes: list) -> None:
              for c in (m, m.fast) if c is not None for r in (c.t_ramp_rise, c.t_ramp_fall)]
     slowest = max(ramps, default=0.0)
     for i, s in enumerate(a.stretches):
-        if not 0.0 < s.td < wf.LUMP_FRACTION * slowest:
+        if not wf.is_short(s.td, slowest):
             continue
         name = ("–".join(a.line.route[i]) if a.line.route else f"section {i + 1}")
         where = "half at each of its two points" if a.net else "at the far end"

@@ -288,8 +288,7 @@ def edge_grid(stretches: Sequence[Stretch], r_source: float, t_ramp: float, c_fa
     # a section far shorter than the ramp counts as a capacitance (wf.LUMP_FRACTION: its
     # delay would set the step for no visible change), at the far end as one without a
     # delay does
-    short = wf.LUMP_FRACTION * t_ramp
-    solved = [s.td > 0.0 and not s.td < short for s in stretches]
+    solved = [s.td > 0.0 and not wf.is_short(s.td, t_ramp) for s in stretches]
     sections = _joined([(s.z0, s.td) for s, x in zip(stretches, solved, strict=True) if x])
     c_lumped_far = c_far + sum(s.td / s.z0 if s.td > 0.0 else s.c
                                for s, x in zip(stretches, solved, strict=True) if not x)

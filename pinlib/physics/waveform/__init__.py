@@ -61,6 +61,7 @@ from pinlib.physics.waveform.tree import (  # noqa: F401
     STEPS_PER_EDGE,
     TreeWaveform,
     choose_step,
+    is_short,
     lump_short,
     tree_response,
 )
@@ -80,6 +81,7 @@ __all__ = [
     "tree_response",
     "choose_step",
     "STEPS_PER_EDGE",
+    "is_short",
     "lump_short",
     "LUMP_FRACTION",
 ]

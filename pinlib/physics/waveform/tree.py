@@ -53,8 +53,8 @@ from pinlib.physics.waveform.march import (
 )
 from pinlib.physics.waveform.metrics import _edge_sign
 
-__all__ = ["TreeWaveform", "tree_response", "choose_step", "lump_short", "STEPS_PER_EDGE",
-           "LUMP_FRACTION"]
+__all__ = ["TreeWaveform", "tree_response", "choose_step", "is_short", "lump_short",
+           "STEPS_PER_EDGE", "LUMP_FRACTION"]
 
 #: Time steps per shortest source ramp or line delay chosen by :func:`choose_step`.
 #: Against ngspice (tests/test_tree_spice.py: daisy chains, stubs, a star, series
@@ -261,6 +261,20 @@ def choose_step(delays, t_ramp, *, tau=0.0, steps=STEPS_PER_EDGE) -> float:
     return dt
 
 
+def is_short(td, t_ramp, fraction=LUMP_FRACTION) -> bool:
+    """Whether a section of delay ``td`` is solved as its capacitance against a source
+    ramp ``t_ramp``: a delay above zero and under ``fraction * t_ramp``
+    (:data:`LUMP_FRACTION`).  The one rule of :func:`lump_short`, of the chain's grid
+    and of the line's note naming what was lumped.
+
+    Examples
+    --------
+    >>> is_short(0.5e-12, 1e-9), is_short(2e-12, 1e-9), is_short(0.0, 1e-9)
+    (True, False, False)
+    """
+    return 0.0 < td < fraction * t_ramp
+
+
 def lump_short(sections, node_caps, t_ramp, fraction=LUMP_FRACTION):
     """The sections and node capacitances of a tree with every section whose delay is
     under ``fraction * t_ramp`` made a lumped capacitance (``td / z0``), half at each of
@@ -290,11 +304,10 @@ def lump_short(sections, node_caps, t_ramp, fraction=LUMP_FRACTION):
     >>> lumped, secs[1], round(caps[2] * 1e15, 3)
     ([1], (1, 2, 1.0, 0.0), 4005.0)
     """
-    limit = fraction * float(t_ramp)
     caps = [float(c) for c in node_caps]
     out, lumped = [], []
     for k, (a, b, z0, td) in enumerate(sections):
-        if 0.0 < td < limit:
+        if is_short(td, float(t_ramp), fraction):
             half = 0.5 * td / z0
             caps[a] += half
             caps[b] += half
