@@ -175,7 +175,7 @@ def _figures_of(cases: dict, receivers=()) -> dict:
             under.append(c.si_wave("fall").undershoot)
             continue
         others = [c.net.node(r) for r in c.load_refs] or [c.net.node(c.driver.ref)]
-        si = c.points if c.fast_points is None else c.fast_points  # the fast corner's
+        si = c.si_points  # the fast corner's, where the driver has one
         over.append(float(np.max(si["rise"].extremes()[0][others])) - si["rise"].v_to)
         under.append(float(np.max(si["fall"].extremes()[1][others])) + si["fall"].v_to)
     return {"edge_rise_time": max(rise_t), "edge_fall_time": max(fall_t),
@@ -197,7 +197,7 @@ def idle_pin_extremes(cases: dict, loads=()) -> list[tuple]:
     for name, edge, k in (("overshoot", "rise", 0), ("undershoot", "fall", 1)):
         idle, at_checked = [], -math.inf
         for c in cases.values():
-            wave = (c.points if c.fast_points is None else c.fast_points)[edge]
+            wave = c.si_points[edge]
             ext = wave.extremes()[k]
             for ref in c.load_refs:
                 v = float(ext[c.net.node(ref)]) + (wave.v_to if k else -wave.v_to)

@@ -102,13 +102,18 @@ class DriveCase:
             return [self.wave(edge)]
         return [self.wave_at(r, edge) for r in self.load_refs] or [self.wave(edge)]
 
+    @property
+    def si_points(self) -> dict | None:
+        """On a routed line, the :class:`PointWaves` that set overshoot, undershoot and
+        ringing: the fast corner's, when the driver has one, else :attr:`points`. [1]"""
+        return self.points if self.fast_points is None else self.fast_points
+
     def si_wave_at(self, ref: str, edge: str) -> EdgeWave:
         """The edge that sets overshoot, undershoot and ringing at a device's own point
         (the fast corner's, when the driver has one). [1]"""
         if self.points is None:
             return self.si_wave(edge)
-        points = self.points if self.fast_points is None else self.fast_points
-        return points[edge].at(self.net.node(ref))
+        return self.si_points[edge].at(self.net.node(ref))
 
     def flight(self, receiver: Endpoint, edge: str) -> Flight:
         """Earliest and latest flight of one edge to a receiver's thresholds. [s]

@@ -55,7 +55,7 @@ def _swing_table(cases: dict) -> tuple[list, np.ndarray, np.ndarray]:
             peaks.append(rise.v_to + rise.overshoot)
             dips.append(fall.undershoot - fall.v_to)
         else:
-            si = c.points if c.fast_points is None else c.fast_points
+            si = c.si_points
             peaks.append(si["rise"].extremes()[0])
             dips.append(si["fall"].extremes()[1])
     return refs, np.asarray(peaks, dtype=float), np.asarray(dips, dtype=float)
