@@ -212,8 +212,7 @@ def _validate(library: loader.Library, part_id: str, path: Path, text: str,
         part = loader._resolve(part_id, files)
     except loader._Many as many:
         errors = many.errors
-        mine = [e for e in errors if field and (e.field == field or (e.field or "")
-                                                 .startswith(field + "."))] or errors
+        mine = [e for e in errors if field and _within(e.field, field)] or errors
         raise _refusal(mine[0], path, field, old_text) from None
     except LibraryError as err:
         raise _refusal(err, path, field, old_text) from None
@@ -243,12 +242,18 @@ def _ancestors(pid: str, files: dict) -> list[str]:
         pid = parent
 
 
+def _within(err_field: str | None, field: str) -> bool:
+    """Whether an issue's field is the value the command wrote or a part of it (its
+    --typ: ``pins.sda.c_in.typ`` under ``pins.sda.c_in``)."""
+    return err_field == field or (err_field or "").startswith(field + ".")
+
+
 def _refusal(err: PinlibError, path: Path, field: str | None, old_text: str | None):
     """The error for a value that does not validate, located in the file as it stands."""
     if field is None:
         return err
     line = None if old_text is None else line_of(line_index(old_text), tuple(field.split(".")))
-    if err.field == field or (err.field or "").startswith(field + "."):
+    if _within(err.field, field):
         # the value, or a part of it the command wrote (its --typ: "pins.sda.c_in.typ")
         return LibraryError(M.VALUE_REFUSED.format(problem=err.problem), file=str(path), line=line,
                             field=err.field, value=err.value, expected=err.expected,
