@@ -366,15 +366,19 @@ lines.sclk = { length = "3 cm", geometry = "g" }
     assert not any("no check covers" in n for n in cipo.notes)
 
 
-def test_an_overshoot_on_cipo_names_the_peripheral_whose_edge_it_is(tmp_path):
-    # the controller's overshoot on CIPO is the worst over the peripherals' edges; the
-    # message said where, not whose, so not where a series resistor would go
-    _, bus = _check(HEAD + """lines.cipo = { route = [
+# invented test data: a CIPO daisy chain, U2 at 2 cm and U3 at 15 cm from the controller
+CIPO_CHAIN = HEAD + """lines.cipo = { route = [
   { from = "U1", to = "U2", length = "2 cm", geometry = "g" },
   { from = "U2", to = "U3", length = "13 cm", geometry = "g" },
 ] }
 lines.sclk = { length = "3 cm", geometry = "g" }
-""", tmp_path)
+"""
+
+
+def test_an_overshoot_on_cipo_names_the_peripheral_whose_edge_it_is(tmp_path):
+    # the controller's overshoot on CIPO is the worst over the peripherals' edges; the
+    # message said where, not whose, so not where a series resistor would go
+    _, bus = _check(CIPO_CHAIN, tmp_path)
     la = bus.workings.lines["cipo"]
     checks = {c.id: c for c in _line(bus, "cipo").checks if c.subject == "U1"}
     for check_id, edge, attr in (("overshoot", "rise", "overshoot"),
@@ -390,12 +394,7 @@ lines.sclk = { length = "3 cm", geometry = "g" }
 def test_ringing_on_cipo_names_the_peripheral_whose_edges_ring(tmp_path):
     # "fix: add or increase a series resistor at the driver" on a line of two drivers
     # left the engineer to guess which one
-    _, bus = _check(HEAD + """lines.cipo = { route = [
-  { from = "U1", to = "U2", length = "2 cm", geometry = "g" },
-  { from = "U2", to = "U3", length = "13 cm", geometry = "g" },
-] }
-lines.sclk = { length = "3 cm", geometry = "g" }
-""", tmp_path)
+    _, bus = _check(CIPO_CHAIN, tmp_path)
     la = bus.workings.lines["cipo"]
     ring = next(c for c in _line(bus, "cipo").checks if c.id == "ringing")
     assert ring.value > 0  # the solver's: this invented route rings at the controller
