@@ -122,9 +122,10 @@ def test_solve_edges_keeps_the_first_records():
 
 
 def test_sections_of_one_impedance_are_solved_as_one_line():
-    # physics: where two lossless sections of one Z0 meet with no pin between them the
-    # reflection coefficient (Z2 - Z1) / (Z2 + Z1) is 0, so they are one line of the
-    # summed delay.  The solver's own answer for the two agrees with the joined line's,
+    # from memory (transmission-line theory): where two lossless sections of one Z0 meet
+    # with no pin between them the reflection coefficient (Z2 - Z1) / (Z2 + Z1) is 0,
+    # so they are one line of the summed delay.  The solver's own answer for the two
+    # agrees with the joined line's,
     # and edge_grid hands the solver the joined one (32 sections of 1 cm cost as one).
     t = np.arange(20001) * 1e-12
     two = wf.distributed_response(t, 1.0, 1e-9, 20.0, [(50.0, 0.3e-9), (50.0, 0.5e-9)],

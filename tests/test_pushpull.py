@@ -465,7 +465,8 @@ lines.cipo = { length = "4 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }
     assert z0.to_json() == {"value": None, "unit": "Ω", "reason": z0.reason}
     from pinlib.model.result import figure_text
     assert figure_text(z0) == z0.reason  # it read "—"
-    # physics: Z0 = tpd / C per length = 50 ps / 1 pF
+    # from memory: a lossless line's Z0 = tpd / C per length (telegrapher's equations):
+    # 50 ps / 1 pF = 50 Ω
     assert lines["cipo"].figures["z0"].value == pytest.approx(50.0, rel=1e-12)
     assert lines["cipo"].figures["z0"].reason is None
 

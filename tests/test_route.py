@@ -618,7 +618,7 @@ def test_a_stub_far_shorter_than_the_ramp_is_lumped_and_says_so(tmp_path):
     note = next(n for n in tiny.notes if n.startswith("T1–U2 (1 µm"))
     assert "lumped capacitance, half at each of its two points" in note
     assert any("lumped capacitance half at each of its two points" in n for n in point.notes)
-    # a point and a 1 µm stub: the same edges but for the stub's 0.1 fF (physics: the
-    # capacitance of 1 µm of trace against picofarads of pins)
+    # a point and a 1 µm stub: the same edges but for the stub's 0.1 fF (common practice,
+    # no source: the capacitance of 1 µm of trace is negligible against picofarads of pins)
     for name in ("edge_rise_time", "edge_fall_time", "overshoot", "undershoot"):
         assert tiny.figures[name].value == pytest.approx(point.figures[name].value, rel=1e-4)
