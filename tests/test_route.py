@@ -574,6 +574,18 @@ def test_a_route_diagram_puts_each_branch_right_below_the_row_it_leaves(tmp_path
     ]
 
 
+def test_a_route_diagram_names_a_cable_stretch_by_its_class(tmp_path):
+    # invented: a board trace to a connector J1, then 25 cm of ribbon to U2 and a trace
+    # on to U3; the cable stretch read "─25 cm─" like a trace of the board
+    from pinlib.present.review.text import route_diagram
+
+    cable = '{ from = "J1", to = "U2", length = "25 cm", part = "ribbon-cable" }'
+    path = _design_text(tmp_path, HEAD, _stretch("U1", "J1"), cable,
+                        _stretch("U2", "U3", "3 cm"))
+    rows = route_diagram(load_design(path).buses[0].lines["sclk"])
+    assert rows == ["U1 ─2 cm─ J1 ─25 cm ribbon-cable─ U2 ─3 cm─ U3"]
+
+
 def test_json_names_each_receiver(capsys):
     main(["check", str(ROUTE_DESIGN), "--json"])
     data = json.loads(capsys.readouterr().out)

@@ -84,13 +84,20 @@ def _length_text(metres: float) -> str:
     return f"{metres:.3g} m"
 
 
+def _stretch_text(section) -> str:
+    """A stretch as the diagram labels it: its length, and a cable's class after it."""
+    length = _length_text(section.length)
+    return f"{length} {section.part_id}" if section.part_id else length
+
+
 #: The widest row of a route diagram (characters): longer paths continue on a new row.
 DIAGRAM_WIDTH = 80
 
 
 def route_diagram(line, width: int = DIAGRAM_WIDTH) -> list[str]:
     """A routed line as text, one row per path: the route's first point, then at each
-    point its first stretch onwards on the same row (``U1 ─2 cm─ T1 ─13 cm─ U3``), every
+    point its first stretch onwards on the same row (``U1 ─2 cm─ T1 ─13 cm─ U3``; a cable
+    stretch names its class, ``J1 ─25 cm ribbon-cable─ U3``), every
     other stretch from a point on a row of its own below, indented to that point
     (``└ T1 ─1 cm─ U2``), the branches farthest along the row first.  A path wider than
     ``width`` goes on in the next row from its last point (``… U7 ─2 cm─ U8``).  Empty
@@ -98,8 +105,8 @@ def route_diagram(line, width: int = DIAGRAM_WIDTH) -> list[str]:
     points = list(getattr(line, "route", ()) or ())
     if not points:
         return []
-    lengths = [s.length for s in line.sections]
-    children: dict[str, list[tuple[str, float]]] = {}
+    lengths = [_stretch_text(s) for s in line.sections]
+    children: dict[str, list[tuple[str, str]]] = {}
     seen = {points[0][0]}
     todo = [points[0][0]]
     while todo:  # orient the tree away from its first point (each point once)
@@ -120,12 +127,12 @@ def route_diagram(line, width: int = DIAGRAM_WIDTH) -> list[str]:
         branches = []
         while children.get(point):
             (nxt, length), *rest = children[point]
-            step = f" ─{_length_text(length)}─ {nxt}"
+            step = f" ─{length}─ {nxt}"
             if len(row) + len(step) > width and len(row) > first:
                 rows.append(row)  # at least one stretch a row, however long
                 row = " " * lead + "… " + point
             column = min(len(row) - len(point), width // 2)
-            branches += [(child, " " * column + f"└ {point} ─{_length_text(ln)}─ ")
+            branches += [(child, " " * column + f"└ {point} ─{ln}─ ")
                          for child, ln in rest]
             row += step
             point = nxt
