@@ -672,3 +672,17 @@ def test_monte_carlo_says_on_how_many_boards_a_passing_check_warned(capsys, monk
     assert f"min  +{low * 1e3:.0f} mV  warns" in row  # it read "min  +21.3 %"
     assert "a warning passing" in out
     assert not any("warns on" in ln for ln in out.splitlines() if "supply-range" in ln)
+
+
+def test_margin_order_keeps_volts_after_fractions_and_places_missing_margins():
+    # one order for the Monte Carlo rows, the corners and the report's charts: a margin
+    # in volts (+0.05 V) is never ranked below a fraction of a limit (+0.30), however
+    # small, and a missing margin goes first or last as the caller asks
+    from pinlib.model.result import margin_order
+
+    margins = [(0.05, "V"), (0.30, None), (None, None), (-0.2, None), (float("nan"), "V")]
+    last = sorted(margins, key=lambda m: margin_order(*m))
+    assert last[:3] == [(-0.2, None), (0.30, None), (None, None)]
+    assert last[3] == (0.05, "V")
+    first = sorted(margins, key=lambda m: margin_order(*m, -math.inf))
+    assert first[:3] == [(None, None), (-0.2, None), (0.30, None)]

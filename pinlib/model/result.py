@@ -156,6 +156,15 @@ def signed_margin_text(m, unit: str | None = None, decimals: int = 0) -> str:
     return ("−" if m < 0 else "+") + format_si(abs(m), unit)
 
 
+def margin_order(m, unit: str | None, missing: float = math.inf) -> tuple[bool, float]:
+    """A sort key of margins, lowest first: every relative margin before any margin in a
+    unit (volts are never ranked against fractions of a limit), and ``missing`` for one
+    that is None or NaN (``-inf`` puts it first, ``inf`` last).  The one order of the
+    Monte Carlo rows, the corners and the report's Monte Carlo charts."""
+    bad = m is None or math.isnan(float(m))
+    return unit is not None, missing if bad else float(m)
+
+
 #: The largest relative margin written as a number, in percent: beyond it a margin reads
 #: as "> +999 %" or "< -999 %" ("-3286574 %" says nothing a reader can use; the value
 #: and the limit shown beside it say by how much, and the JSON keeps the number).

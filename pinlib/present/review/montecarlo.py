@@ -4,7 +4,7 @@ run's summary sentences and the histograms of the checks with the lowest pass fr
 
 from __future__ import annotations
 
-from pinlib.model.result import signed_margin_text
+from pinlib.model.result import margin_order, signed_margin_text
 from pinlib.present.review.draw import _draw
 
 
@@ -90,8 +90,7 @@ def _mc_charts(mc, keys) -> tuple[list, list]:
 
     def order(r):
         frac = r["fraction"] if r["fraction"] is not None else 1.0
-        low = r["lowest"] if r["lowest"] is not None else float("inf")
-        return (frac, r.get("margin_unit") is not None, low)  # volts never against fractions
+        return (frac, *margin_order(r["lowest"], r.get("margin_unit")))
 
     drawn = sorted((r for r in shown if r["samples"] is not None and r["varies"]),
                    key=order)[:MC_CHARTS]

@@ -19,7 +19,7 @@ from pinlib.engines.memo import run_scope
 from pinlib.engines.opendrain import batch as ob
 from pinlib.engines.ppcorners import corner_rows
 from pinlib.model.design import Design
-from pinlib.model.result import json_number
+from pinlib.model.result import json_number, margin_order
 from pinlib.studies.whatif.checknames import _names, _not_sampled
 from pinlib.studies.whatif.mcresult import _fmt_margin, find_check
 from pinlib.studies.whatif.tolerances import (
@@ -108,9 +108,7 @@ class CornersResult:
         for bus, method in self.methods.items():
             lines.append(f"  bus {bus}: {method}")
         rows = [c for c in self.checks if c.corner]
-        rows.sort(key=lambda c: (c.margin_unit is not None,  # volts never against fractions
-                                 -math.inf if c.margin is None or math.isnan(c.margin)
-                                 else c.margin))
+        rows.sort(key=lambda c: margin_order(c.margin, c.margin_unit, -math.inf))
         shown = rows[:limit] if limit else rows
         if shown:
             lines.append("  lowest margins at their worst corners:")

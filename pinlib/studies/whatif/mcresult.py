@@ -3,13 +3,12 @@ and the run (:class:`McResult`), as JSON and as text."""
 
 from __future__ import annotations
 
-import math
 from dataclasses import field
 
 import numpy as np
 
 from pinlib.core.valueclass import value_class
-from pinlib.model.result import json_number, signed_margin_text
+from pinlib.model.result import json_number, margin_order, signed_margin_text
 from pinlib.studies.whatif.tally import MarginHistogram
 from pinlib.studies.whatif.tolerances import Parameter
 from pinlib.studies.whatif.yields import CONFIDENCE, Yield, _pct
@@ -185,8 +184,7 @@ class McResult:
         for bus, y in self.buses.items():  # a coupling's id holds "<-"
             lines.append(f"  {'coupling' if '<-' in bus else 'bus'} {bus}: {_pct(y)}")
         rows = [c for c in self.checks if c.varies or c.passes.passes < c.passes.n]
-        # margins in a unit are never ranked against fractions of a limit
-        rows.sort(key=lambda c: (c.passes.passes, c.margin_unit is not None, _low(c)))
+        rows.sort(key=lambda c: (c.passes.passes, *margin_order(_low(c), c.margin_unit)))
         shown = rows[:limit] if limit else rows
         if shown:
             lines.append("  checks with the fewest passing boards and the lowest margins (pass "
@@ -212,9 +210,8 @@ class McResult:
         return "\n".join(lines) + "\n"
 
 
-def _low(c: McCheck) -> float:
-    q = c.margin_quantiles((0.0,))[0]
-    return math.inf if q is None else q
+def _low(c: McCheck) -> float | None:
+    return c.margin_quantiles((0.0,))[0]
 
 
 def _fmt_margin(m, unit: str | None = None) -> str:
