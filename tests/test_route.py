@@ -101,6 +101,17 @@ def test_missing_device_is_named(tmp_path):
     with pytest.raises(DesignError) as info:
         load_design(_design(tmp_path, _stretch("U1", "U2"), _stretch("U2", "J1")))
     assert "U3" in str(info.value)
+    assert "misspelt" not in str(info.value)  # J1 is like no device
+
+
+def test_a_misspelt_device_on_a_route_is_suggested(tmp_path):
+    # U3 written "U33": the point reads as a junction (an open stub), so the error is
+    # that U3 is on no point; it now names the point that looks like a misspelling
+    with pytest.raises(DesignError) as info:
+        load_design(_design(tmp_path, _stretch("U1", "T1"), _stretch("T1", "U2"),
+                            _stretch("T1", "U33")))
+    assert info.value.hint == "the route's point U33 names no device of the bus " \
+                              "(a junction): U3 misspelt?"
 
 
 def test_an_empty_route_is_named_as_such(tmp_path):

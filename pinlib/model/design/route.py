@@ -121,6 +121,12 @@ def route_of(rt: RawTrace, loc, devices: Sequence[Device], protocol: str, signal
     named = {p for pair in points for p in pair}
     for d in devices:
         if d.ref in on and d.ref not in named:
+            # a misspelt ref reads as a junction: name the route's points most like it
+            from pinlib.core.nearby import closest
+
+            near = closest(d.ref, sorted(named - of_bus))
             raise err(M.ROUTE_MISSES_DEVICE, rloc, value=d.ref,
-                      expected=f"a stretch from or to {d.ref}")
+                      expected=f"a stretch from or to {d.ref}",
+                      hint=(f"the route's point {near[0]} names no device of the bus "
+                            f"(a junction): {d.ref} misspelt?") if near else None)
     return tuple(out), points
