@@ -145,3 +145,22 @@ def test_reading_errors_name_the_option_and_its_value_in_units(design, capsys):
                  "--probe", "10pF"]) == 2
     err = " ".join(capsys.readouterr().err.split())
     assert "field '--rise'" in err and "(got '-5 ns')" in err
+
+
+@pytest.mark.parametrize("width", range(60, 90, 3))
+def test_wrapped_output_never_parts_a_number_from_its_unit(design, capsys, monkeypatch,
+                                                             width):
+    # at 80 columns the first line ended "Rp 4.7" and the next began "kΩ (±1%)": the
+    # comparison wrapped with plain textwrap, not the one rule that glues a number to
+    # its unit and to the word it names
+    import re
+
+    monkeypatch.setenv("COLUMNS", str(width))
+    main(["measured", str(design), "--bus", "i2c0", "--rise", "150ns", "--probe", "10pF",
+          "--levels", "10,90"])
+    lines = capsys.readouterr().out.splitlines()
+    assert len(lines) > 4 and all(len(ln) <= width for ln in lines)
+    assert any("Rp 2.2 kΩ" in ln for ln in lines)
+    for ln in lines:
+        assert not re.search(r"(^|\s)[\d.]+$", ln), ln  # a number left without its unit
+        assert not re.match(r"\s+(kΩ|pF|ns|Ω)\b", ln), ln

@@ -119,11 +119,10 @@ class BenchComparison:
         lines.append("  " + verdict)
         lines += [f"  - {r}" for r in self.revisit]
         if width is not None:
-            import textwrap
+            from pinlib.core.wrapping import wrap
 
-            lines = [w for ln in lines for w in textwrap.wrap(
-                ln, width, initial_indent="", subsequent_indent=" " * (
-                    len(ln) - len(ln.lstrip()) + 4)) or [""]]
+            lines = [w for ln in lines
+                     for w in wrap(ln.lstrip(), width, ln[:len(ln) - len(ln.lstrip())])]
         return "\n".join(lines) + "\n"
 
 

@@ -46,7 +46,7 @@ def format_many(summaries, cols: int | None = None) -> str:
     """Every design's line (and snapshot changes), then the counts of designs; ``cols``:
     characters per line (None: no limit), a design's line cut to it (its title last, so
     the status, path and counts stay whole) and the closing line wrapped."""
-    import textwrap
+    from pinlib.present.terminal import wrap
 
     width = max(len(s.path) for s in summaries)
     out = []
@@ -63,7 +63,7 @@ def format_many(summaries, cols: int | None = None) -> str:
     closing = (f"{n} design{'s' if n != 1 else ''}: {counts['pass']} pass, "
                f"{counts['warn']} warn, {counts['fail']} fail, {counts['error']} not checked; "
                "'pinlib check DESIGN' shows one in full")
-    out += textwrap.wrap(closing, cols, subsequent_indent="    ") if cols else [closing]
+    out += wrap(closing, cols) if cols else [closing]
     return "\n".join(out) + "\n"
 
 

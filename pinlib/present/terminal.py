@@ -10,9 +10,9 @@
   output is a terminal and ``NO_COLOR`` is unset or empty (the https://no-color.org
   convention).  The few ANSI codes are written here: no library is imported, so a
   fresh ``pinlib check`` pays nothing for them.
-* Wrapping: :func:`wrap` fits one logical line to the width with its continuation lines
-  indented; the width counts characters, not escape codes, since colour is added after
-  wrapping.
+* Wrapping: :func:`wrap` (:mod:`pinlib.core.wrapping`, re-exported here) fits one logical
+  line to the width with its continuation lines indented; the width counts characters,
+  not escape codes, since colour is added after wrapping.
 """
 
 from __future__ import annotations
@@ -20,9 +20,9 @@ from __future__ import annotations
 import os
 import re
 import sys
-import textwrap
 
 from pinlib.core.commandtext import continued_lines
+from pinlib.core.wrapping import NBSP, wrap
 
 __all__ = ["DEFAULT_WIDTH", "MIN_WIDTH", "columns", "width", "use_colour", "status_word", "wrap",
            "fitted", "shell_word", "shown_path"]
@@ -32,11 +32,7 @@ DEFAULT_WIDTH = 80
 #: The narrowest text the tables are laid out for (a narrower COLUMNS is raised to it).
 MIN_WIDTH = 40
 
-#: A number stays on one line with its unit, its relation (≤, ≥) and the word before it
-#: ("tr 242 ns").
-_GLUE = re.compile(r"(?<=\d) (?=[^\W\d_]|%|Ω|µ|°)|(?<=[≤≥−+]) (?=\d)"
-                   r"|(?<=[^\W\d_]) (?=[+−-]?\d)")
-_NBSP = "\u00a0"
+
 #: A message's program and kind ("pinlib: error: ") and the word after them.
 _HEAD = re.compile(r"^[\w-]+: [\w-]+: \S+")
 
@@ -100,15 +96,6 @@ def status_word(status: str, colour: bool = False) -> str:
     return f"\x1b[{_SGR[status]}m{word}\x1b[0m"
 
 
-def wrap(text: str, cols: int, indent: str = "", subsequent: str = "    ") -> list[str]:
-    """One logical line wrapped to ``cols`` characters, continuation lines indented by
-    ``subsequent`` (after ``indent``); a word longer than the width is broken."""
-    glued = _GLUE.sub(_NBSP, text)
-    lines = textwrap.wrap(glued, max(10, cols), initial_indent=indent,
-                          subsequent_indent=indent + subsequent, break_on_hyphens=False)
-    return [ln.replace(_NBSP, " ") for ln in lines] or [indent.rstrip()]
-
-
 def fitted(line: str, stream=None) -> str:
     """``line`` wrapped to the width of ``stream`` (standard output by default) when it is
     a terminal or COLUMNS is set (:func:`table_width`), continuation lines indented;
@@ -119,8 +106,8 @@ def fitted(line: str, stream=None) -> str:
         return line
     # "pinlib: error: " stays with the file it names
     head = _HEAD.match(line)
-    glued = line if head is None else head.group(0).replace(" ", _NBSP) + line[head.end():]
-    return "\n".join(ln.replace(_NBSP, " ") for ln in wrap(glued, cols))
+    glued = line if head is None else head.group(0).replace(" ", NBSP) + line[head.end():]
+    return "\n".join(ln.replace(NBSP, " ") for ln in wrap(glued, cols))
 
 
 def fitted_command(head: str, words: list[str], stream=None) -> str:

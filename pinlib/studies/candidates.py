@@ -28,7 +28,6 @@ Nothing here computes a figure: the engines do.
 from __future__ import annotations
 
 import math
-import textwrap
 from dataclasses import field
 
 import numpy as np
@@ -42,6 +41,7 @@ from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS
 from pinlib.core.quantity import format_si
 from pinlib.core.texttable import fit_table
 from pinlib.core.valueclass import value_class
+from pinlib.core.wrapping import wrap
 from pinlib.engines import memo
 from pinlib.engines import opendrain as od
 from pinlib.engines.opendrain import batch as ob
@@ -235,7 +235,7 @@ class Ranking:
                           + f", {b['role']})" for b in self.buses)
         lines = [f"position {self.ref}, now {self.current}: {where}", self.count_text()]
         if width is not None:
-            lines = [w for ln in lines for w in textwrap.wrap(ln, width, subsequent_indent="    ")]
+            lines = [w for ln in lines for w in wrap(ln, width)]
         shown = self.candidates if top is None else self.candidates[:top]
         if shown:
             fig_cols = []
@@ -262,17 +262,15 @@ class Ranking:
             lines.append("")
             lines += table
             if dropped:
-                lines += textwrap.wrap(M.COLUMNS_LEFT_OUT.format(columns=", ".join(dropped)),
-                                       width)
+                lines += wrap(M.COLUMNS_LEFT_OUT.format(columns=", ".join(dropped)), width,
+                              subsequent="")
             if len(shown) < len(self.candidates):
                 lines.append(f"… {len(self.candidates) - len(shown)} more (--top N)")
             lines.append("* the part in the design now")
             for note in self.status_notes(shown):
-                lines += [note] if width is None else textwrap.wrap(note, width,
-                                                                    subsequent_indent="  ")
+                lines += [note] if width is None else wrap(note, width, subsequent="  ")
         for n in self.notes:
-            lines += ([f"note: {n}"] if width is None else
-                      textwrap.wrap(f"note: {n}", width, subsequent_indent="    "))
+            lines += [f"note: {n}"] if width is None else wrap(f"note: {n}", width)
         return "\n".join(lines) + "\n"
 
 

@@ -239,18 +239,16 @@ def _table(rows: list[list[str]], header: list[str], keep: int = 2,
     """The table fitted to the terminal's width (COLUMNS; piped output whole): columns that do not
     fit are left out and named; a long cell wraps inside its column.  ``left_out``: a line
     to print for a column when it is left out (what it would have told)."""
-    import textwrap
-
     from pinlib.core.texttable import fit_table
-    from pinlib.present.terminal import table_width
+    from pinlib.present.terminal import table_width, wrap
 
     cols = table_width()
     lines, dropped = fit_table(header, rows, cols, keep=keep, rule=True)
     for column, note in (left_out or {}).items():
         if column in dropped and note:
-            lines += textwrap.wrap(note, cols, break_on_hyphens=False)
+            lines += wrap(note, cols, subsequent="")
     if dropped:
-        lines += textwrap.wrap(M.COLUMNS_LEFT_OUT.format(columns=", ".join(dropped)), cols)
+        lines += wrap(M.COLUMNS_LEFT_OUT.format(columns=", ".join(dropped)), cols, subsequent="")
     return "\n".join(lines)
 
 

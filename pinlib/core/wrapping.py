@@ -1,0 +1,30 @@
+"""One logical line of text fitted to a width, a number never parted from its unit.
+
+The one wrapping rule of every text pinlib prints (the checks, the candidates, the bench
+comparison, the tables' notes): :func:`textwrap.wrap` on words, where the space between a
+number and its unit ("4.7 kΩ"), a relation and its number ("≥ 0 V") and a word and the
+number it names ("Rp 4.7 kΩ") is held as one word.
+"""
+
+from __future__ import annotations
+
+import re
+import textwrap
+
+__all__ = ["wrap", "NBSP"]
+
+#: A number stays on one line with its unit, its relation (≤, ≥) and the word before it
+#: ("tr 242 ns").
+_GLUE = re.compile(r"(?<=\d) (?=[^\W\d_]|%|Ω|µ|°)|(?<=[≤≥−+]) (?=\d)"
+                   r"|(?<=[^\W\d_]) (?=[+−-]?\d)")
+#: The no-break space that holds two words together while wrapping (a space again after).
+NBSP = "\u00a0"
+
+
+def wrap(text: str, cols: int, indent: str = "", subsequent: str = "    ") -> list[str]:
+    """One logical line wrapped to ``cols`` characters, continuation lines indented by
+    ``subsequent`` (after ``indent``); a word longer than the width is broken."""
+    glued = _GLUE.sub(NBSP, text)
+    lines = textwrap.wrap(glued, max(10, cols), initial_indent=indent,
+                          subsequent_indent=indent + subsequent, break_on_hyphens=False)
+    return [ln.replace(NBSP, " ") for ln in lines] or [indent.rstrip()]
