@@ -44,6 +44,21 @@ def test_new_writes_a_design_that_loads_and_checks(tmp_path, capsys):
     assert main(["check", str(path)]) in (0, 1)
 
 
+def test_a_new_design_fits_80_columns_with_its_notes_in_one_column(tmp_path, capsys):
+    # the SPI lines' "# placeholder" notes ran to 115 columns, and the protocol's note
+    # stood at another column than the others; GPIO and "on no bus" lists were one line
+    parts = ["U1=mcu-3v3", "U2=eeprom-i2c", "U3=nor-flash-spi", "U4=adc-spi",
+             "U5=dac-spi"] + [f"U{i}=rtc-i2c" for i in range(6, 30)]
+    path = tmp_path / "board.toml"
+    argv = ["new", str(path)] + [w for p in parts for w in ("--part", p)]
+    assert main(argv) == 0, capsys.readouterr().err
+    lines = path.read_text(encoding="utf-8").splitlines()
+    assert all(len(ln) <= 80 for ln in lines), [ln for ln in lines if len(ln) > 80]
+    beside = {ln.index(" # ") + 1 for ln in lines if " # " in ln and not ln.startswith("#")}
+    assert beside == {33}
+    assert load_design(path).buses  # and it still loads
+
+
 def test_new_refuses_to_overwrite(tmp_path, capsys):
     path = tmp_path / "board.toml"
     path.write_text("# mine\n", encoding="utf-8")

@@ -20,6 +20,7 @@ import json
 from pinlib.core import protocols
 from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
+from pinlib.core.wrapping import wrap
 
 __all__ = ["Placement", "starter_text", "STARTER_GEOMETRY"]
 
@@ -35,6 +36,20 @@ class Placement:
 
     ref: str
     part_id: str
+
+
+#: The column a comment beside a value starts at; a longer line has its comment above it.
+NOTE_COLUMN = 33
+#: The widest line the starter writes.
+WIDTH = 80
+
+
+def _noted(code: str, note: str) -> str:
+    """A line of TOML with its comment beside it at :data:`NOTE_COLUMN`, or on the line
+    above it where the two would not fit in :data:`WIDTH` columns side by side."""
+    if len(code) < NOTE_COLUMN and NOTE_COLUMN + 2 + len(note) <= WIDTH:
+        return f"{code.ljust(NOTE_COLUMN)}# {note}"
+    return f"# {note}\n{code}"
 
 
 def _toml_string(text: str) -> str:
@@ -99,14 +114,13 @@ def _open_drain_rail(members, ctrl, bridge=None) -> list[str]:
     (placement, side) of a bridging part on it."""
     parts = dict((pl.ref, p) for pl, p in members)
     rail = _supply(parts[ctrl.ref]) if ctrl is not None else _supply(members[0][1])
-    out = [f'supply = "{format_si(rail, "V")}"                 # the rail of the pull-ups: '
-           'check it',
+    out = [_noted(f'supply = "{format_si(rail, "V")}"', "the rail of the pull-ups: check it"),
            'supply_tolerance = "5 %"',
-           'pullup = "auto"                  # or a value, e.g. "4.7 kΩ"',
+           _noted('pullup = "auto"', 'or a value, e.g. "4.7 kΩ"'),
            'pullup_tolerance = "1 %"',
            'pullup_series = "E24"',
-           'trace = { length = "10 cm", geometry = "outer" }   # placeholder: '
-           'your routed length']
+           _noted('trace = { length = "10 cm", geometry = "outer" }',
+                  "placeholder: your routed length")]
     out += _device_lines(members, ctrl)
     if bridge is not None:
         pl, side = bridge
@@ -141,11 +155,13 @@ def _bus(group, members, bridges=()) -> tuple[list[str], bool]:
     ctrl_part = dict((pl.ref, p) for pl, p in members)[ctrl.ref]
     supply = format_si(_supply(ctrl_part), "V")
     others = [p.name for p in group[1:]]
-    alt = ("   # or " + " or ".join(f'"{o}"' for o in others)) if others else ""
-    out = ["", f"# The {proto.name.upper()} bus of {', '.join(pl.ref for pl, _ in members)}.",
-           "[[bus]]", f'id = "{proto.name}"', f'protocol = "{proto.name}"{alt}']
+    kind = f'protocol = "{proto.name}"'
+    refs = ", ".join(pl.ref for pl, _ in members)
+    out = ["", *wrap(f"The {proto.name.upper()} bus of {refs}.", WIDTH, "# ", ""),
+           "[[bus]]", f'id = "{proto.name}"',
+           _noted(kind, "or " + " or ".join(f'"{o}"' for o in others)) if others else kind]
     if proto.open_drain:
-        out += ['mode = "standard"                # see docs/formats/design.md for the modes',
+        out += [_noted('mode = "standard"', "see docs/formats/design.md for the modes"),
                 'clock = "100 kHz"']
         segments = _segments(members, ctrl, bridges[0]) if len(bridges) == 1 else None
         if segments is None:
@@ -157,16 +173,19 @@ def _bus(group, members, bridges=()) -> tuple[list[str], bool]:
             out += ["", f"# Segment: {where}.", "[[bus.segment]]",
                     f'id = "{name}-{_rail_name(seg)}"'] + seg
         return out, True
-    out += ["spi_mode = 0                     # CPOL/CPHA of the peripherals",
-            'clock = "1 MHz"                  # placeholder: the clock you intend',
-            f'supply = "{supply}"                 # the rail of the I/O: check it',
+    out += [_noted("spi_mode = 0", "CPOL/CPHA of the peripherals"),
+            _noted('clock = "1 MHz"', "placeholder: the clock you intend"),
+            _noted(f'supply = "{supply}"', "the rail of the I/O: check it"),
             'supply_tolerance = "5 %"']
     out += _device_lines(members, ctrl)
+    out.append("# placeholders: each line's routed length (a `route` puts each device at "
+               "its own")
+    out.append("# place: docs/formats/design.md)")
     for sig in proto.signal_names:
         if sig in ("sclk", "cs") or any(sig in _serves(p, proto) for pl, p in members
                                         if pl is not ctrl):
             out.append(f'lines.{sig} = {{ length = "5 cm", geometry = "outer", '
-                       'series_resistor = "auto" }   # placeholder: your routed length')
+                       'series_resistor = "auto" }')
     return out, False
 
 
@@ -188,8 +207,8 @@ def starter_text(title: str, placed: list[tuple[Placement, object]]) -> tuple[st
         traces, and the parts that went on no bus named in a comment; and the number
         of buses it holds.
     """
-    out = ["# A starter design written by 'pinlib new': every length, rail and clock below is",
-           "# a placeholder to replace with your board's own.  Check it with",
+    out = ["# A starter design written by 'pinlib new': every length, rail and clock",
+           "# below is a placeholder to replace with your board's own.  Check it with",
            "#   pinlib check THIS-FILE",
            'format = "pinlib.design/1"', f"title = {_toml_string(title)}", "",
            "# An example outer-layer trace over FR-4: put your board's stack-up here.",
@@ -211,9 +230,10 @@ def starter_text(title: str, placed: list[tuple[Placement, object]]) -> tuple[st
     gpio = [f"{pl.ref}.{name}" for pl, p in placed
             for name, pin in p.pins.items() if pin.function == "gpio"]
     if gpio:
-        out += ["", "# GPIO pins of these parts (a gpio bus per line, see "
-                "docs/formats/design.md): " + ", ".join(gpio)]
+        out += ["", *wrap("GPIO pins of these parts (a gpio bus per line, see "
+                          "docs/formats/design.md): " + ", ".join(gpio), WIDTH, "# ", "")]
     left = [pl.ref for pl, _ in placed if pl.ref not in on_bus]
     if left:
-        out += ["", "# On no bus (no protocol they share with another part): " + ", ".join(left)]
+        out += ["", *wrap("On no bus (no protocol they share with another part): "
+                          + ", ".join(left), WIDTH, "# ", "")]
     return "\n".join(out) + "\n", buses
