@@ -219,6 +219,44 @@ def test_parallel_and_serial_runs_agree(tmp_path):
     assert default_jobs(1) == 1
 
 
+def _slow_check(path, *args):
+    """A stand-in for ``many.check_one`` in the workers: marks the design as checked."""
+    import time
+
+    from pinlib.studies.many import DesignSummary
+
+    time.sleep(0.2)
+    Path(str(path) + ".checked").write_text("", encoding="utf-8")
+    return DesignSummary(str(path))
+
+
+def test_ctrl_c_drops_the_designs_not_started(tmp_path, monkeypatch):
+    """Ctrl-C while many designs are checked in workers: the designs still waiting are
+    not checked (nor saved) after the command has stopped; only those a worker had
+    already taken finish."""
+    import multiprocessing
+    import time
+
+    from pinlib.studies import many
+
+    monkeypatch.setattr(many, "check_one", _slow_check)  # the forked workers see it too
+    paths = [tmp_path / f"{i}.toml" for i in range(24)]
+
+    def ctrl_c(done, total):
+        raise KeyboardInterrupt
+
+    with pytest.raises(KeyboardInterrupt):
+        many.check_many(paths, jobs=2, progress=ctrl_c)
+    # the command's frame is gone once it has printed its line; wait for the workers
+    end = time.monotonic() + 30
+    while multiprocessing.active_children() and time.monotonic() < end:
+        time.sleep(0.05)
+    checked = len(list(tmp_path.glob("*.checked")))
+    # the first two done, two running and three queued for them when it came (the
+    # pool's call queue holds workers + 1), and a spare for timing; before: all 24
+    assert checked <= 8, f"{checked} of {len(paths)} designs checked after Ctrl-C"
+
+
 def test_progress_counts_designs(tmp_path):
     from pinlib.studies.many import check_many
 
