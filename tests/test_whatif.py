@@ -672,3 +672,40 @@ def test_monte_carlo_says_on_how_many_boards_a_passing_check_warned(capsys, monk
     assert f"min  +{low * 1e3:.0f} mV  warns" in row  # it read "min  +21.3 %"
     assert "a warning passing" in out
     assert not any("warns on" in ln for ln in out.splitlines() if "supply-range" in ln)
+
+
+def test_a_row_without_sensitivities_says_why(capsys, monkeypatch):
+    # A check that fails on every board with the same margin (the one-km link's CIPO
+    # setup: it has no toleranced parameter) printed a bare "—" where the parameters it
+    # follows go; the text and the report now say why none is named
+    monkeypatch.setenv("COLUMNS", "400")
+    one_km = ROOT / "tests" / "data" / "spi-one-km.toml"
+    assert main(["check", str(one_km), "--monte-carlo", "20", "--seed", "1"]) == 1
+    out = capsys.readouterr().out
+    row = next(ln for ln in out.splitlines() if "cipo-setup" in ln and "(0/20)" in ln)
+    assert row.rstrip().endswith("the same margin on every board")
+    assert not any(ln.rstrip().endswith("—") for ln in out.splitlines())
+
+    from pinlib.present.review.montecarlo import _mc_cells, _mc_rows
+    from pinlib.studies.whatif.mcresult import McCheck
+    from pinlib.studies.whatif.yields import Yield
+
+    def check(margins, sensitivity=(), r2=None):
+        return McCheck("b x", "b", "b", None, "x", "", "", "pass", 0.1,
+                       Yield(4, 4, (0.5, 1.0)), margins=margins,
+                       sensitivity=list(sensitivity), r2=r2, sampled=4)
+
+    steady = check(np.full(4, 0.1))
+    yes_no = check(None)
+    loose = check(np.array([0.1, 0.3, 0.2, 0.4]), r2=0.01)
+    unfitted = check(np.array([0.1, 0.3, 0.2, 0.4]))
+    named = check(np.array([0.1, 0.3, 0.2, 0.4]), [("rail 3.3 V", -0.9)], 0.81)
+    assert steady.sensitivity_text() == "the same margin on every board"
+    assert yes_no.sensitivity_text() == "a yes/no check: no margin to follow"
+    assert loose.sensitivity_text() == "no parameter's coefficient reaches 0.05 (R² 0.01)"
+    assert unfitted.sensitivity_text() == "too few boards to fit"
+    assert named.sensitivity_text() == "rail 3.3 V -0.90"
+    # the report's table says the same in its column
+    rows = _mc_rows([steady, named])
+    assert [_mc_cells(r)[4] for r in rows] == ["the same margin on every board",
+                                               "rail 3.3 V -0.90"]

@@ -51,6 +51,8 @@ def _mc_rows(mc) -> list[dict]:
                 "varies": bool(_get(entry, "varies", True)),
                 "failures": passes.passes < passes.n, "lowest": lowest,
                 "sensitivity": list(_get(entry, "sensitivity", []) or [])[:3],
+                "sensitivity_text": entry.sensitivity_text()
+                if hasattr(entry, "sensitivity_text") else None,
                 "source": _get(entry, "source", "") or "",
                 # a long run keeps the margins of its first boards only, and counts
                 # every board's in bins
@@ -157,7 +159,9 @@ def _mc_cells(row: dict) -> list[str]:
     ci = "" if row["ci"] is None else f"{float(row['ci'][0]):.2%} to {float(row['ci'][1]):.2%}"
     low = "" if row["lowest"] is None else signed_margin_text(row["lowest"],
                                                               row.get("margin_unit"), 1)
-    sens = ", ".join(f"{n} {c:+.2f}" for n, c in row["sensitivity"]) or "—"
+    sens = (row.get("sensitivity_text")
+            or ", ".join(f"{n} {c:+.2f}" for n, c in row["sensitivity"])
+            or "not fitted: the entry gives no parameter draws")
     return [row["where"], frac, ci, low, sens, row["source"]]
 
 
