@@ -709,3 +709,14 @@ def test_a_row_without_sensitivities_says_why(capsys, monkeypatch):
     rows = _mc_rows([steady, named])
     assert [_mc_cells(r)[4] for r in rows] == ["the same margin on every board",
                                                "rail 3.3 V -0.90"]
+
+
+def test_wilson_bounds_are_exact_where_no_board_fails_or_none_passes():
+    # The formula's sum gave 0.9999999999999998 for the upper bound when every board
+    # passes and 1.08e-19 for the lower one when none does; both are exact by the
+    # algebra (derived from the Wilson formula: p = 1 gives (1 + z²/n)/(1 + z²/n))
+    assert whatif.wilson_interval(200, 200)[1] == 1.0
+    assert whatif.wilson_interval(0, 200)[0] == 0.0
+    # derived from the Wilson formula: z²/(n + z²) with z = 1.96, n = 300,000 -> 1.28e-5
+    lo, hi = whatif.wilson_interval(300_000, 300_000)
+    assert hi == 1.0 and lo == pytest.approx(1 - 1.2805e-5, abs=1e-9)

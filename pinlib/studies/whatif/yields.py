@@ -60,7 +60,12 @@ def wilson_interval(passes: int, n: int, confidence: float = CONFIDENCE) -> tupl
     denom = 1.0 + z * z / n
     centre = (p + z * z / (2.0 * n)) / denom
     half = z * math.sqrt(p * (1.0 - p) / n + z * z / (4.0 * n * n)) / denom
-    return max(0.0, centre - half), min(1.0, centre + half)
+    # with no failure (no pass) the upper (lower) bound is 1 (0) exactly; the sum in
+    # floating point gave 0.9999999999999998 (1.08e-19), which read as short of 100 %
+    # (above 0 %) wherever a percentage shows enough digits to tell
+    lo = 0.0 if passes == 0 else max(0.0, centre - half)
+    hi = 1.0 if passes == n else min(1.0, centre + half)
+    return lo, hi
 
 
 @value_class
