@@ -720,3 +720,19 @@ def test_wilson_bounds_are_exact_where_no_board_fails_or_none_passes():
     # derived from the Wilson formula: z²/(n + z²) with z = 1.96, n = 300,000 -> 1.28e-5
     lo, hi = whatif.wilson_interval(300_000, 300_000)
     assert hi == 1.0 and lo == pytest.approx(1 - 1.2805e-5, abs=1e-9)
+
+
+def test_a_pass_fraction_short_of_one_never_reads_100_percent():
+    # 300,000 boards that all pass: the Wilson interval's lower bound is 1 - 1.28e-5,
+    # which two decimals printed as "[100.00%, 100.00%]", an interval of no width; and
+    # 299,998 passing boards read "100.00%" as though none had failed
+    from pinlib.present.review.montecarlo import _yield
+    from pinlib.studies.whatif.yields import Yield, _pct, percent_text
+
+    clean = Yield(300_000, 300_000, whatif.wilson_interval(300_000, 300_000))
+    assert _pct(clean) == "100.00% [99.999%, 100.00%] (300000/300000)"
+    assert _yield(clean) == "100.00% (99.999% to 100.00%, 300000/300000)"
+    assert percent_text(299_998 / 300_000) == "99.999%"
+    assert percent_text(1 / 300_000) == "0.0003%"
+    assert percent_text(0.91004) == "91.00%"       # two decimals where they tell
+    assert (percent_text(1.0), percent_text(0.0)) == ("100.00%", "0.00%")

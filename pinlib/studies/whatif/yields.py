@@ -85,6 +85,21 @@ class Yield:
                 "interval": list(self.interval)}
 
 
+def percent_text(x: float) -> str:
+    """A fraction as a percentage with two decimals, or as many more (up to eight) as
+    keep a fraction that is not 1 from reading 100.00 % and one that is not 0 from
+    reading 0.00 %: 299,998 boards of 300,000 pass on 99.999%, not on 100.00%."""
+    x = float(x)
+    text = f"{x:.2%}"
+    for digits in range(3, 9):
+        shown = float(text[:-1])
+        if (x >= 1.0 or shown < 100.0) and (x <= 0.0 or shown > 0.0):
+            break
+        text = f"{x:.{digits}%}"
+    return text
+
+
 def _pct(y: Yield) -> str:
     lo, hi = y.interval
-    return f"{y.fraction:.2%} [{lo:.2%}, {hi:.2%}] ({y.passes}/{y.n})"
+    return (f"{percent_text(y.fraction)} [{percent_text(lo)}, {percent_text(hi)}] "
+            f"({y.passes}/{y.n})")
