@@ -340,3 +340,19 @@ def test_errors_wrap_to_the_terminal_and_stay_whole_in_a_pipe(tmp_path, capsys,
     monkeypatch.delenv("COLUMNS")
     assert main(["check", str(path)]) == 2  # stderr captured: not a terminal
     assert len(capsys.readouterr().err.splitlines()) == 1
+
+
+def test_ctrl_c_prints_one_line_to_a_file_or_pipe(capsys, monkeypatch):
+    # it printed a blank line first (meant to leave the ^C a terminal echoes), so a log
+    # or a pipe got two lines; a terminal still gets its line on a fresh row
+    from pinlib.cli.commands import check
+
+    def stop(args):
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(check, "run", stop)
+    assert main(["check", str(DEMO)]) == 130
+    assert capsys.readouterr().err == "pinlib: interrupted (Ctrl-C): stopped\n"
+    monkeypatch.setattr(sys.stderr, "isatty", lambda: True, raising=False)
+    assert main(["check", str(DEMO)]) == 130
+    assert capsys.readouterr().err == "\npinlib: interrupted (Ctrl-C): stopped\n"
