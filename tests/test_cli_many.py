@@ -494,3 +494,16 @@ def test_many_designs_fit_the_width(tmp_path, capsys, monkeypatch):
     lines = capsys.readouterr().out.splitlines()
     assert all(len(line) <= 60 for line in lines)
     assert lines[0].startswith("WARN  a.toml") and lines[1].startswith("WARN  b.toml")
+
+
+def test_a_damaged_snapshot_is_not_called_missing(tmp_path, capsys):
+    # a snapshot cut short (a disk full, an editor) read "no snapshot to compare with
+    # (pinlib check DESIGN --save keeps one)" above the warning that named it
+    a, b = _board(tmp_path, "a.toml"), _board(tmp_path, "b.toml")
+    (tmp_path / "a.result.json").write_text('{"format": "pinlib.res', encoding="utf-8")
+    main(["check", str(a), str(b), "--against-snapshots", "--jobs", "1"])
+    out = capsys.readouterr().out.splitlines()
+    below_a = out[out.index(next(ln for ln in out if "a.toml" in ln)) + 1]
+    assert below_a.strip() == "its snapshot could not be read: nothing to compare with"
+    below_b = out[out.index(next(ln for ln in out if "b.toml" in ln)) + 1]
+    assert below_b.strip().startswith("no snapshot to compare with")
