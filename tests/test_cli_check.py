@@ -340,3 +340,46 @@ def test_errors_wrap_to_the_terminal_and_stay_whole_in_a_pipe(tmp_path, capsys,
     monkeypatch.delenv("COLUMNS")
     assert main(["check", str(path)]) == 2  # stderr captured: not a terminal
     assert len(capsys.readouterr().err.splitlines()) == 1
+
+
+def test_ctrl_c_prints_one_line_to_a_file_or_pipe(capsys, monkeypatch):
+    # it printed a blank line first (meant to leave the ^C a terminal echoes), so a log
+    # or a pipe got two lines; a terminal still gets its line on a fresh row
+    from pinlib.cli.commands import check
+
+    def stop(args):
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(check, "run", stop)
+    assert main(["check", str(DEMO)]) == 130
+    assert capsys.readouterr().err == "pinlib: interrupted (Ctrl-C): stopped\n"
+    monkeypatch.setattr(sys.stderr, "isatty", lambda: True, raising=False)
+    assert main(["check", str(DEMO)]) == 130
+    assert capsys.readouterr().err == "\npinlib: interrupted (Ctrl-C): stopped\n"
+
+
+def test_a_figure_without_a_number_says_why(capsys, monkeypatch):
+    # --detail printed an infinite Rp(min) as "∞" (the translator link: no pull-up is
+    # large enough for its weakest sink), and the CIPO setup margin of the demo's
+    # write-only display bus, or of a CIPO that never reaches VIH, as a bare "—"
+    monkeypatch.setenv("COLUMNS", "100")
+    data = ROOT / "tests" / "data"
+    cases = [(data / "translator-cable.toml", "rp_min", "Rp(min)", "no pull-up is large enough"),
+             (DEMO, "cipo_setup_margin", "CIPO setup margin", "not computed"),
+             (data / "spi-cipo-never-high.toml", "cipo_setup_margin", "CIPO setup margin",
+              "CIPO never crosses"),
+             (data / "spi-cipo-never-high.toml", "max_clock", "Highest clock",
+              "no clock satisfies")]
+    for path, fig, label, why in cases:
+        main(["check", str(path), "--json"])
+        doc = json.loads(capsys.readouterr().out)
+        groups = [g for b in doc["buses"] for g in [b, *b.get("segments", [])]]
+        nones = [g["figures"][fig] for g in groups
+                 if fig in g["figures"] and g["figures"][fig]["value"] is None]
+        assert nones and all(why in f["reason"] for f in nones), (path.name, fig)
+        main(["check", str(path), "--detail"])
+        out = capsys.readouterr().out
+        assert "∞" not in out and "inf" not in out.split()
+        rows = [ln for ln in out.splitlines() if ln.strip().startswith(label + "  ")]
+        assert any(why in ln for ln in rows), (path.name, rows)
+        assert not any(ln.rstrip().endswith("—") for ln in rows), (path.name, rows)

@@ -234,6 +234,44 @@ def test_parallel_and_serial_runs_agree(tmp_path):
     assert default_jobs(1) == 1
 
 
+def _slow_check(path, *args):
+    """A stand-in for ``many.check_one`` in the workers: marks the design as checked."""
+    import time
+
+    from pinlib.studies.many import DesignSummary
+
+    time.sleep(0.2)
+    Path(str(path) + ".checked").write_text("", encoding="utf-8")
+    return DesignSummary(str(path))
+
+
+def test_ctrl_c_drops_the_designs_not_started(tmp_path, monkeypatch):
+    """Ctrl-C while many designs are checked in workers: the designs still waiting are
+    not checked (nor saved) after the command has stopped; only those a worker had
+    already taken finish."""
+    import multiprocessing
+    import time
+
+    from pinlib.studies import many
+
+    monkeypatch.setattr(many, "check_one", _slow_check)  # the forked workers see it too
+    paths = [tmp_path / f"{i}.toml" for i in range(24)]
+
+    def ctrl_c(done, total):
+        raise KeyboardInterrupt
+
+    with pytest.raises(KeyboardInterrupt):
+        many.check_many(paths, jobs=2, progress=ctrl_c)
+    # the command's frame is gone once it has printed its line; wait for the workers
+    end = time.monotonic() + 30
+    while multiprocessing.active_children() and time.monotonic() < end:
+        time.sleep(0.05)
+    checked = len(list(tmp_path.glob("*.checked")))
+    # the first two done, two running and three queued for them when it came (the
+    # pool's call queue holds workers + 1), and a spare for timing; before: all 24
+    assert checked <= 8, f"{checked} of {len(paths)} designs checked after Ctrl-C"
+
+
 def test_progress_counts_designs(tmp_path):
     from pinlib.studies.many import check_many
 
@@ -471,3 +509,16 @@ def test_many_designs_fit_the_width(tmp_path, capsys, monkeypatch):
     lines = capsys.readouterr().out.splitlines()
     assert all(len(line) <= 60 for line in lines)
     assert lines[0].startswith("WARN  a.toml") and lines[1].startswith("WARN  b.toml")
+
+
+def test_a_damaged_snapshot_is_not_called_missing(tmp_path, capsys):
+    # a snapshot cut short (a disk full, an editor) read "no snapshot to compare with
+    # (pinlib check DESIGN --save keeps one)" above the warning that named it
+    a, b = _board(tmp_path, "a.toml"), _board(tmp_path, "b.toml")
+    (tmp_path / "a.result.json").write_text('{"format": "pinlib.res', encoding="utf-8")
+    main(["check", str(a), str(b), "--against-snapshots", "--jobs", "1"])
+    out = capsys.readouterr().out.splitlines()
+    below_a = out[out.index(next(ln for ln in out if "a.toml" in ln)) + 1]
+    assert below_a.strip() == "its snapshot could not be read: nothing to compare with"
+    below_b = out[out.index(next(ln for ln in out if "b.toml" in ln)) + 1]
+    assert below_b.strip().startswith("no snapshot to compare with")

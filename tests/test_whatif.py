@@ -686,3 +686,67 @@ def test_margin_order_keeps_volts_after_fractions_and_places_missing_margins():
     assert last[3] == (0.05, "V")
     first = sorted(margins, key=lambda m: margin_order(*m, -math.inf))
     assert first[:3] == [(None, None), (-0.2, None), (0.30, None)]
+
+
+def test_a_row_without_sensitivities_says_why(capsys, monkeypatch):
+    # A check that fails on every board with the same margin (the one-km link's CIPO
+    # setup: it has no toleranced parameter) printed a bare "—" where the parameters it
+    # follows go; the text and the report now say why none is named
+    monkeypatch.setenv("COLUMNS", "400")
+    one_km = ROOT / "tests" / "data" / "spi-one-km.toml"
+    assert main(["check", str(one_km), "--monte-carlo", "20", "--seed", "1"]) == 1
+    out = capsys.readouterr().out
+    row = next(ln for ln in out.splitlines() if "cipo-setup" in ln and "(0/20)" in ln)
+    assert row.rstrip().endswith("the same margin on every board")
+    assert not any(ln.rstrip().endswith("—") for ln in out.splitlines())
+
+    from pinlib.present.review.montecarlo import _mc_cells, _mc_rows
+    from pinlib.studies.whatif.mcresult import McCheck
+    from pinlib.studies.whatif.yields import Yield
+
+    def check(margins, sensitivity=(), r2=None):
+        return McCheck("b x", "b", "b", None, "x", "", "", "pass", 0.1,
+                       Yield(4, 4, (0.5, 1.0)), margins=margins,
+                       sensitivity=list(sensitivity), r2=r2, sampled=4)
+
+    steady = check(np.full(4, 0.1))
+    yes_no = check(None)
+    loose = check(np.array([0.1, 0.3, 0.2, 0.4]), r2=0.01)
+    unfitted = check(np.array([0.1, 0.3, 0.2, 0.4]))
+    named = check(np.array([0.1, 0.3, 0.2, 0.4]), [("rail 3.3 V", -0.9)], 0.81)
+    assert steady.sensitivity_text() == "the same margin on every board"
+    assert yes_no.sensitivity_text() == "a yes/no check: no margin to follow"
+    assert loose.sensitivity_text() == "no parameter's coefficient reaches 0.05 (R² 0.01)"
+    assert unfitted.sensitivity_text() == "too few boards to fit"
+    assert named.sensitivity_text() == "rail 3.3 V -0.90"
+    # the report's table says the same in its column
+    rows = _mc_rows([steady, named])
+    assert [_mc_cells(r)[4] for r in rows] == ["the same margin on every board",
+                                               "rail 3.3 V -0.90"]
+
+
+def test_wilson_bounds_are_exact_where_no_board_fails_or_none_passes():
+    # The formula's sum gave 0.9999999999999998 for the upper bound when every board
+    # passes and 1.08e-19 for the lower one when none does; both are exact by the
+    # algebra (derived from the Wilson formula: p = 1 gives (1 + z²/n)/(1 + z²/n))
+    assert whatif.wilson_interval(200, 200)[1] == 1.0
+    assert whatif.wilson_interval(0, 200)[0] == 0.0
+    # derived from the Wilson formula: z²/(n + z²) with z = 1.96, n = 300,000 -> 1.28e-5
+    lo, hi = whatif.wilson_interval(300_000, 300_000)
+    assert hi == 1.0 and lo == pytest.approx(1 - 1.2805e-5, abs=1e-9)
+
+
+def test_a_pass_fraction_short_of_one_never_reads_100_percent():
+    # 300,000 boards that all pass: the Wilson interval's lower bound is 1 - 1.28e-5,
+    # which two decimals printed as "[100.00%, 100.00%]", an interval of no width; and
+    # 299,998 passing boards read "100.00%" as though none had failed
+    from pinlib.present.review.montecarlo import _yield
+    from pinlib.studies.whatif.yields import Yield, _pct, percent_text
+
+    clean = Yield(300_000, 300_000, whatif.wilson_interval(300_000, 300_000))
+    assert _pct(clean) == "100.00% [99.999%, 100.00%] (300000/300000)"
+    assert _yield(clean) == "100.00% (99.999% to 100.00%, 300000/300000)"
+    assert percent_text(299_998 / 300_000) == "99.999%"
+    assert percent_text(1 / 300_000) == "0.0003%"
+    assert percent_text(0.91004) == "91.00%"       # two decimals where they tell
+    assert (percent_text(1.0), percent_text(0.0)) == ("100.00%", "0.00%")

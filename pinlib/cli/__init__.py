@@ -147,10 +147,17 @@ def main(argv: list[str] | None = None) -> int:
 
 
 def _interrupted() -> int:
+    """One line on standard error; on a terminal it starts on a line of its own (the
+    terminal has echoed ^C, or a progress bar stood there), in a file or a pipe it is the
+    only line, with no blank one before it."""
     from pinlib.core import messages as M
 
     try:
-        print(f"\npinlib: {M.INTERRUPTED}", file=sys.stderr)
+        try:
+            fresh = "\n" if sys.stderr.isatty() else ""
+        except (AttributeError, ValueError):
+            fresh = ""
+        print(f"{fresh}pinlib: {M.INTERRUPTED}", file=sys.stderr)
     except (OSError, ValueError):
         pass
     return 130

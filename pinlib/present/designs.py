@@ -28,6 +28,9 @@ def _snapshot_lines(s, cols: int | None) -> list[str]:
         return []
     if s.snapshot == "compared":
         lines = ["    " + line if line else "" for line in s.changes_text.rstrip().splitlines()]
+    elif s.snapshot == "damaged":   # there is one, which could not be read
+        lines = ["    its snapshot could not be read: nothing to compare with"]
+        lines += [f"    warning: {n}" for n in s.notes]
     else:
         lines = ["    no snapshot to compare with (pinlib check DESIGN --save keeps one)"]
         lines += [f"    warning: {n}" for n in s.notes]

@@ -47,7 +47,12 @@ def table(rows: list[list[str]], indent: str, cols: int, flex: int,
 
 def _figures(g: Group, indent: str, cols: int) -> list[str]:
     rows = [list(cells) for cells in figure_cells(g.figures)]
-    return table(rows, indent, cols, flex=0) if rows else []
+    if not rows:
+        return []
+    # a long value (a reason in words) wraps in its own column where the labels leave it
+    # room, else the labels wrap
+    room = cols - len(indent) - max(len(r[0]) for r in rows) - 2
+    return table(rows, indent, cols, flex=1 if room >= 2 * _MIN_FLEX else 0)
 
 
 def _checks(g: Group, indent: str, cols: int, sources: dict[str, int]) -> list[str]:

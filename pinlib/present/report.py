@@ -73,9 +73,14 @@ def problem_line(bus: BusResult, where: str | None, signal: str | None, c: Check
 
 
 def _fig_text(group, name: str) -> str | None:
+    """A figure for a bus's one line: its value, or where it has no number the head of
+    its reason ("none", "no upper bound (Cb is 0)"; the problem lines above say more);
+    None where it has neither."""
     f = group.figures.get(name)
-    if f is None or (f.value is None and not f.reason):
+    if f is None:
         return None
+    if f.value is None or (isinstance(f.value, float) and not math.isfinite(f.value)):
+        return f.reason.split(":")[0] if f.reason else None
     return figure_text(f)
 
 
@@ -136,7 +141,8 @@ def _worst_text(bus: BusResult) -> str | None:
 def _spi(bus: BusResult) -> list[str]:
     parts = []
     clock = _fig_text(bus, "max_clock")
-    if clock is None and "max_clock" in bus.figures:
+    if "max_clock" in bus.figures and bus.figures["max_clock"].value is None:
+        clock = None
         parts.append("max clock — (not computed; the notes in --detail say why)")
     if clock:
         by = _fig_text(bus, "max_clock_limited_by")

@@ -177,14 +177,22 @@ def check_many(paths, library_folders=(), *, jobs: int | None = None,
     context = multiprocessing.get_context("fork" if "fork" in methods else None)
     pool = ProcessPoolExecutor(max_workers=jobs, mp_context=context,
                                initializer=_worker_ignores_ctrl_c)
+    futures: dict = {}
     try:
-        futures = {pool.submit(check_one, p, *args): i for i, p in enumerate(paths)}
+        for i, p in enumerate(paths):
+            futures[pool.submit(check_one, p, *args)] = i
         with progress_bar(len(paths), desc="designs", unit="design", enabled=progress) as bar:
             for fut in as_completed(futures):
                 out[futures[fut]] = fut.result()
                 bar.update()
     except BaseException:
         # Ctrl-C (or a worker lost): the designs not started are dropped, not waited for.
+        # Each future is cancelled here: shutdown's own cancel_futures is carried out by
+        # the pool's manager thread, which skips it once the pool object is gone — and
+        # it goes as soon as this frame unwinds, so every design went on being checked
+        # (and saved) after the command had said it stopped.
+        for fut in futures:
+            fut.cancel()
         pool.shutdown(wait=False, cancel_futures=True)
         raise
     pool.shutdown()

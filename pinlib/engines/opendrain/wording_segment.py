@@ -71,21 +71,33 @@ _FALL_FIGURES = ("fall_time", "fall_time_sda", "fall_time_scl")
 
 #: Why Rp(max) is none where Cb is 0: UM10204 eq. 1, tr/(k·Cb), bounds nothing.
 RP_MAX_UNBOUNDED = "no upper bound (Cb is 0)"
+#: Why Rp(min) is none where it is infinite: the weakest sink's rating is spent before
+#: this segment's pull-up draws anything (the pull-ups across a pass-transistor
+#: translator alone take it), so no resistor is large enough; pullup-window says more.
+RP_MIN_NONE = "none: no pull-up is large enough for the weakest sink (see Pull-up window)"
+#: Why a fall time (and the clock worked out from it) is none where it is infinite.
+FALL_NONE = "none: the line never falls to VIL (see Fall time)"
 
 
 def _unbounded(grp: Group) -> None:
     """An infinite fall time, and the effective clock worked out from it (0 Hz), are
-    none: a line that never falls has neither.  An infinite Rp(max) (Cb is 0) is none,
-    with its reason in words."""
-    f = grp.figures.get("rp_max")
-    if f is not None and f.value is not None and not math.isfinite(f.value):
-        grp.figure("rp_max", None, f.unit, RP_MAX_UNBOUNDED)
+    none: a line that never falls has neither.  An infinite Rp(max) (Cb is 0) or Rp(min)
+    (no resistor large enough) is none.  Each with its reason in words, which the text
+    shows in place of the number (an infinite Rp(min) read "∞", a fall time "—")."""
+    for name, f in list(grp.figures.items()):
+        if f.value is None or isinstance(f.value, (bool, str)) or math.isfinite(f.value):
+            continue
+        if name.startswith("rp_max"):
+            grp.figure(name, None, f.unit, RP_MAX_UNBOUNDED)
+        elif name.startswith("rp_min"):   # the number stays (the batch holds it alike)
+            grp.figure(name, f.value, f.unit, RP_MIN_NONE)
     for name in _FALL_FIGURES:
         f = grp.figures.get(name)
         if f is not None and f.value is not None and not math.isfinite(f.value):
-            grp.figure(name, None, f.unit)
+            grp.figure(name, None, f.unit, FALL_NONE)
             if name == "fall_time_scl":
-                grp.figure("scl_frequency_effective", None, _unit("scl_frequency_effective"))
+                grp.figure("scl_frequency_effective", None, _unit("scl_frequency_effective"),
+                           FALL_NONE.replace("the line", "SCL"))
 
 
 def _timing(w: Words, sb) -> None:

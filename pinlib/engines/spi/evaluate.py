@@ -76,7 +76,8 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
     for la in sa.lines.values():
         res.lines.append(la.result)
     (f_top, by, _), (f_edge, edge_sig) = sa.clock_limits()[0], sa.edge_rule_clock()
-    res.figure("max_clock", f_top if f_top > 0 else None, "Hz")
+    res.figure("max_clock", f_top if f_top > 0 else None, "Hz",
+               None if f_top > 0 else f"none: no clock satisfies {by}")
     res.figure("max_clock_limited_by", by, "")
     res.figure("max_clock_edge_rule", f_edge, "Hz")
     if f_top <= 0:
@@ -93,11 +94,16 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
                          f"period (rule of thumb; set by {edge_sig}); it warns, it does not "
                          "limit")
     for fig, tid in MARGIN_FIGURES:
-        res.figure(fig, worst.get(tid), "s")
         if tid not in worst:
-            res.notes.append(f"{fig}: not computed (signal not routed or data missing)")
+            reason = "not computed (signal not routed or data missing)"
+            res.notes.append(f"{fig}: {reason}")
         elif tid in why:
-            res.notes.append(f"{fig}: none, {why[tid]}")
+            reason = f"none, {why[tid]}"
+            res.notes.append(f"{fig}: {reason}")
+        else:
+            reason = None if worst[tid] is not None else "none: no finite time available"
+        # a figure without a number says why, in place of it (it read "—")
+        res.figure(fig, worst.get(tid), "s", reason)
     return res
 
 

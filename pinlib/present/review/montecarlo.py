@@ -6,6 +6,7 @@ from __future__ import annotations
 
 from pinlib.model.result import margin_order, signed_margin_text
 from pinlib.present.review.draw import _draw
+from pinlib.studies.whatif.yields import percent_text
 
 
 def _get(obj, name, default=None):
@@ -51,6 +52,8 @@ def _mc_rows(mc) -> list[dict]:
                 "varies": bool(_get(entry, "varies", True)),
                 "failures": passes.passes < passes.n, "lowest": lowest,
                 "sensitivity": list(_get(entry, "sensitivity", []) or [])[:3],
+                "sensitivity_text": entry.sensitivity_text()
+                if hasattr(entry, "sensitivity_text") else None,
                 "source": _get(entry, "source", "") or "",
                 # a long run keeps the margins of its first boards only, and counts
                 # every board's in bins
@@ -98,9 +101,9 @@ def _mc_charts(mc, keys) -> tuple[list, list]:
     for r in drawn:
         sub = None
         if r["fraction"] is not None:
-            sub = f"pass fraction {r['fraction']:.2%}"
+            sub = f"pass fraction {percent_text(r['fraction'])}"
             if r["ci"] is not None:
-                sub += f" ({float(r['ci'][0]):.2%} to {float(r['ci'][1]):.2%})"
+                sub += f" ({percent_text(r['ci'][0])} to {percent_text(r['ci'][1])})"
         title = f"Monte Carlo: {r['where']}"
         limit = "margin 0 (the limit itself)" if (r["unit"] == "%" or r.get("margin_unit")) \
             and r["limit"] == 0.0 \
@@ -148,15 +151,19 @@ def _mc_summary(mc) -> list[str]:
 
 def _yield(y) -> str:
     lo, hi = y.interval
-    return f"{y.fraction:.2%} ({lo:.2%} to {hi:.2%}, {y.passes}/{y.n})"
+    return f"{percent_text(y.fraction)} ({percent_text(lo)} to {percent_text(hi)}, " \
+           f"{y.passes}/{y.n})"
 
 
 def _mc_cells(row: dict) -> list[str]:
-    frac = "" if row["fraction"] is None else f"{row['fraction']:.2%}"
-    ci = "" if row["ci"] is None else f"{float(row['ci'][0]):.2%} to {float(row['ci'][1]):.2%}"
+    frac = "" if row["fraction"] is None else percent_text(row["fraction"])
+    ci = "" if row["ci"] is None else f"{percent_text(row['ci'][0])} to " \
+                                      f"{percent_text(row['ci'][1])}"
     low = "" if row["lowest"] is None else signed_margin_text(row["lowest"],
                                                               row.get("margin_unit"), 1)
-    sens = ", ".join(f"{n} {c:+.2f}" for n, c in row["sensitivity"]) or "—"
+    sens = (row.get("sensitivity_text")
+            or ", ".join(f"{n} {c:+.2f}" for n, c in row["sensitivity"])
+            or "not fitted: the entry gives no parameter draws")
     return [row["where"], frac, ci, low, sens, row["source"]]
 
 

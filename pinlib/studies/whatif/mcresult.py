@@ -9,6 +9,7 @@ import numpy as np
 
 from pinlib.core.valueclass import value_class
 from pinlib.model.result import json_number, margin_order, signed_margin_text
+from pinlib.studies.whatif.sensitivity import SENSITIVITY_FLOOR
 from pinlib.studies.whatif.tally import MarginHistogram
 from pinlib.studies.whatif.tolerances import Parameter
 from pinlib.studies.whatif.yields import CONFIDENCE, Yield, _pct
@@ -109,6 +110,20 @@ class McCheck:
         return [self.low if q == 0 else float(np.quantile(m, q)) if m.size else None
                 for q in qs]
 
+    def sensitivity_text(self, most: int = 3) -> str:
+        """The parameters the margin follows most (at most ``most``, each with its
+        standardized coefficient), or why none is named."""
+        if self.sensitivity:
+            return ", ".join(f"{n} {s:+.2f}" for n, s in self.sensitivity[:most])
+        if self.margins is None:
+            return "a yes/no check: no margin to follow"
+        if not self.varies:
+            return "the same margin on every board"
+        if self.r2 is None:
+            return "too few boards to fit"
+        return (f"no parameter's coefficient reaches {SENSITIVITY_FLOOR:g} "
+                f"(R² {self.r2:.2f})")
+
     def to_json(self) -> dict:
         q = self.margin_quantiles()
         return {"name": self.name, "bus": self.bus, "segment": self.segment,
@@ -192,7 +207,7 @@ class McResult:
                          "most sensitive to):")
             w = max(len(c.name) for c in shown)
             for c in shown:
-                sens = ", ".join(f"{n} {s:+.2f}" for n, s in c.sensitivity[:3]) or "—"
+                sens = c.sensitivity_text()
                 # a rule of thumb's check warns below its limit: 100 % passing beside a
                 # margin of -89 % says so, or it reads as a contradiction
                 warned = f"warns on {c.warns}; " if c.warns else ""

@@ -60,7 +60,12 @@ def wilson_interval(passes: int, n: int, confidence: float = CONFIDENCE) -> tupl
     denom = 1.0 + z * z / n
     centre = (p + z * z / (2.0 * n)) / denom
     half = z * math.sqrt(p * (1.0 - p) / n + z * z / (4.0 * n * n)) / denom
-    return max(0.0, centre - half), min(1.0, centre + half)
+    # with no failure (no pass) the upper (lower) bound is 1 (0) exactly; the sum in
+    # floating point gave 0.9999999999999998 (1.08e-19), which read as short of 100 %
+    # (above 0 %) wherever a percentage shows enough digits to tell
+    lo = 0.0 if passes == 0 else max(0.0, centre - half)
+    hi = 1.0 if passes == n else min(1.0, centre + half)
+    return lo, hi
 
 
 @value_class
@@ -80,6 +85,21 @@ class Yield:
                 "interval": list(self.interval)}
 
 
+def percent_text(x: float) -> str:
+    """A fraction as a percentage with two decimals, or as many more (up to eight) as
+    keep a fraction that is not 1 from reading 100.00 % and one that is not 0 from
+    reading 0.00 %: 299,998 boards of 300,000 pass on 99.999%, not on 100.00%."""
+    x = float(x)
+    text = f"{x:.2%}"
+    for digits in range(3, 9):
+        shown = float(text[:-1])
+        if (x >= 1.0 or shown < 100.0) and (x <= 0.0 or shown > 0.0):
+            break
+        text = f"{x:.{digits}%}"
+    return text
+
+
 def _pct(y: Yield) -> str:
     lo, hi = y.interval
-    return f"{y.fraction:.2%} [{lo:.2%}, {hi:.2%}] ({y.passes}/{y.n})"
+    return (f"{percent_text(y.fraction)} [{percent_text(lo)}, {percent_text(hi)}] "
+            f"({y.passes}/{y.n})")
