@@ -158,3 +158,44 @@ def test_a_line_far_longer_than_a_board_bus_says_so():
     short = check_design(_slow_edge()).bus("flash")
     # a 5 cm trace (0.3 ns) is well inside the 50 ns period
     assert all(ln.check("line-delay").status == "pass" for ln in short.lines)
+
+
+def _rail_at_the_range(tmp_path) -> Path:
+    """A 1.8 V +/-10 % rail under parts rated 1.62 V to 1.98 V: the rail's corners are
+    exactly the part's range (invented scenario)."""
+    lib = tmp_path / "lib"
+    lib.mkdir()
+    (lib / "edge-1v8.toml").write_text(
+        'format = "pinlib.part/1"\nid = "edge-1v8"\ntitle = "Invented 1.8 V part"\n'
+        'category = "controller"\nextends = "mcu-1v8"\n'
+        'supply = { min = "1.62 V", max = "1.98 V" }\n'
+        'provenance = { basis = "datasheet", source = "invented sheet" }\n', encoding="utf-8")
+    design = tmp_path / "d.toml"
+    design.write_text(
+        'format = "pinlib.design/1"\ntitle = "rail at the range (invented)"\n'
+        'library = ["lib"]\n\n'
+        '[[bus]]\nid = "irq"\nprotocol = "gpio"\nsupply = "1.8 V"\n'
+        'supply_tolerance = "10 %"\n'
+        'devices = [\n  { ref = "U1", part = "edge-1v8", role = "controller", pin = "cs" },\n'
+        '  { ref = "U2", part = "edge-1v8", pin = "cipo" },\n]\n'
+        'lines.irq = { length = "2 cm", capacitance = "1 pF/cm" }\n\n'
+        '[[bus]]\nid = "i2c0"\nprotocol = "i2c"\nsupply = "1.8 V"\n'
+        'supply_tolerance = "10 %"\npullup = "2.2 kΩ"\n'
+        'devices = [\n  { ref = "U1", part = "edge-1v8", role = "controller" },\n'
+        '  { ref = "U3", part = "edge-1v8" },\n]\n'
+        'trace = { length = "2 cm", capacitance = "1 pF/cm" }\n', encoding="utf-8")
+    return design
+
+
+def test_a_rail_whose_corners_are_the_parts_range_is_inside_it(tmp_path):
+    # reproducer: 1.8 V +10 % is 1.9800000000000002 in floating point, which failed
+    # against a 1.98 V maximum with "margin > -0.001 %"
+    res = check_design(load_design(_rail_at_the_range(tmp_path)))
+    got = {b.id: [c for _, _, c in b.all_checks() if c.id == "supply-range"]
+           for b in res.results()}
+    assert {c.subject for c in got["irq"]} == {"U1", "U2"} and got["i2c0"]
+    got = got["irq"] + got["i2c0"]   # the push-pull engine's and the open-drain one's
+    for c in got:
+        # derived: 1.8 V x (1 +/- 0.10) = 1.62 V and 1.98 V, the part's own range
+        assert c.value == pytest.approx(1.98 if c.value > 1.8 else 1.62, rel=1e-12)
+        assert c.status == "pass" and c.margin == 0.0, c.message
