@@ -199,3 +199,15 @@ def test_a_rail_whose_corners_are_the_parts_range_is_inside_it(tmp_path):
         # derived: 1.8 V x (1 +/- 0.10) = 1.62 V and 1.98 V, the part's own range
         assert c.value == pytest.approx(1.98 if c.value > 1.8 else 1.62, rel=1e-12)
         assert c.status == "pass" and c.margin == 0.0, c.message
+
+
+def test_a_check_alike_at_both_ends_of_a_rail_names_a_corner_not_nominal(tmp_path):
+    # reproducer: the rail's two ends are both at the part's range (margin 0, worse than
+    # the nominal board's), and the check read "U1 runs from 1.62 V ... (worst corner:
+    # nominal)" beside its value at a corner
+    res = check_design(load_design(_rail_at_the_range(tmp_path))).bus("irq")
+    for c in (c for c in res.checks if c.id == "supply-range"):
+        # derived: 1.62 V is 1.8 V -10 %, 1.98 V is 1.8 V +10 %
+        end = "−10 %" if c.value < 1.8 else "+10 %"
+        assert c.details["corner"] == f"rail 1.8 V {end}", c.message
+        assert "(worst corner: nominal)" not in c.message

@@ -261,6 +261,8 @@ def _assemble(bus, nominal, specs, worst, seen) -> BusResult:
             return not (a == b or abs(a - b) <= 1e-12 * max(1.0, abs(b)))
 
         text = _corner_text(specs, key, moves)
+        if text == "nominal":  # worse than nominal, and alike at both ends of each
+            text = _corner_text(specs, key)  # parameter: the board it was found on
         return replace(w, message=f"{w.message} (worst corner: {text})",
                        details={**w.details, "corner": text})
 
