@@ -211,3 +211,67 @@ def test_a_check_alike_at_both_ends_of_a_rail_names_a_corner_not_nominal(tmp_pat
         end = "−10 %" if c.value < 1.8 else "+10 %"
         assert c.details["corner"] == f"rail 1.8 V {end}", c.message
         assert "(worst corner: nominal)" not in c.message
+
+
+def _unlimited(tmp_path) -> Path:
+    """An SPI bus whose parts record no timing and no f_max, with SCLK and COPI routed
+    (invented scenario): nothing in the parts' data limits the clock."""
+    lib = tmp_path / "lib"
+    lib.mkdir()
+    (lib / "bare-ctl.toml").write_text(
+        'format = "pinlib.part/1"\nid = "bare-ctl"\ntitle = "Invented controller"\n'
+        'category = "controller"\nextends = "controller-base"\n'
+        'supply = { min = "3 V", max = "3.6 V" }\n'
+        'provenance = { basis = "datasheet", source = "invented sheet" }\n'
+        '[pins.sclk]\nr_out = "30 Ω"\n[pins.copi]\nr_out = "30 Ω"\n[pins.cs]\n'
+        'r_out = "30 Ω"\n', encoding="utf-8")
+    (lib / "bare-per.toml").write_text(
+        'format = "pinlib.part/1"\nid = "bare-per"\ntitle = "Invented peripheral"\n'
+        'category = "display"\nextends = "spi-peripheral"\n'
+        'provenance = { basis = "datasheet", source = "invented sheet" }\n',
+        encoding="utf-8")
+    design = tmp_path / "d.toml"
+    design.write_text(
+        'format = "pinlib.design/1"\ntitle = "nothing limits the clock (invented)"\n'
+        'library = ["lib"]\n\n[[bus]]\nid = "spi0"\nprotocol = "spi"\nclock = "10 MHz"\n'
+        'supply = "3.3 V"\n'
+        'devices = [\n  { ref = "U1", part = "bare-ctl", role = "controller" },\n'
+        '  { ref = "U2", part = "bare-per" },\n]\n'
+        'lines.sclk = { length = "2 cm", capacitance = "1 pF/cm" }\n', encoding="utf-8")
+    return design
+
+
+def test_a_clock_nothing_limits_is_said_in_words_not_infinity(tmp_path, monkeypatch, capsys):
+    # reproducer: "max clock ∞ (set by nothing)" on the bus line, "Highest clock ∞" in
+    # --detail, and null without a reason in the JSON
+    from pinlib.cli import main
+
+    design = _unlimited(tmp_path)
+    bus = check_design(load_design(design)).bus("spi0")
+    f = bus.figures["max_clock"]
+    assert f.value is None and "not limited" in f.reason
+    assert f.to_json()["reason"] == f.reason
+    for name in ("copi_setup_margin", "cipo_setup_margin", "copi_hold_margin"):
+        assert bus.figures[name].value is None and bus.figures[name].reason
+    monkeypatch.setenv("COLUMNS", "80")
+    for args in ([], ["--detail"]):
+        assert main(["check", str(design), *args]) == 0
+        out = capsys.readouterr().out
+        assert "∞" not in out and not re.search(r"\binf\b|\bnan\b", out, re.IGNORECASE)
+        assert "not limited" in out
+        for ln in out.splitlines():
+            assert not re.search(r"(clock|margin)\s+—$", ln), ln
+
+
+def test_a_figure_without_a_number_gives_its_reason_in_the_detail(monkeypatch, capsys):
+    # the never-switching receiver: the figures the notes explain read "—" in the table
+    from pinlib.cli import main
+
+    res = check_design(load_design(DATA / "spi-cipo-never-high.toml")).bus("flash")
+    for name in ("max_clock", "cipo_setup_margin"):
+        assert res.figures[name].value is None and res.figures[name].reason, name
+    monkeypatch.setenv("COLUMNS", "80")
+    main(["check", str(DATA / "spi-cipo-never-high.toml"), "--detail"])
+    out = capsys.readouterr().out
+    for ln in out.splitlines():
+        assert not re.search(r"(clock|margin)\s+—$", ln), ln

@@ -46,8 +46,14 @@ def table(rows: list[list[str]], indent: str, cols: int, flex: int,
 
 
 def _figures(g: Group, indent: str, cols: int) -> list[str]:
+    """A group's figures under their labels: the value column wraps (a reason in words,
+    "no section with a delay (...)") and the labels keep their width, unless the width
+    leaves the values too little room; then the labels wrap."""
     rows = [list(cells) for cells in figure_cells(g.figures)]
-    return table(rows, indent, cols, flex=0) if rows else []
+    if not rows:
+        return []
+    room = cols - len(indent) - 2 - max(len(r[0]) for r in rows)
+    return table(rows, indent, cols, flex=1 if room >= 2 * _MIN_FLEX else 0)
 
 
 def _checks(g: Group, indent: str, cols: int, sources: dict[str, int]) -> list[str]:

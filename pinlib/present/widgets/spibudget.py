@@ -14,7 +14,7 @@ from pinlib.core.tomlfile import tomllib
 from pinlib.core.valueclass import value_class
 from pinlib.engines.dispatch import evaluate_bus
 from pinlib.model.design import Design, design_from_text, load_design
-from pinlib.model.result import BusResult
+from pinlib.model.result import BusResult, figure_text
 from pinlib.present import charts, plotdata
 from pinlib.present.report import format_value
 from pinlib.present.widgets.common import (
@@ -221,7 +221,7 @@ class SpiBudget(_Panel):
     def _show_limits(self) -> None:
         f = self.figures.get("max_clock")
         top = self.limits[0] if self.limits else None
-        text = f"Highest clock: <b>{e(format_value(f.value, f.unit))}</b>" if f else ""
+        text = f"Highest clock: <b>{e(figure_text(f))}</b>" if f else ""
         if top is not None:
             text += f", set by <b>{e(top.label)}</b> ({e(top.source)})"
         self.max_html.value = block(text, size=13)
