@@ -111,13 +111,19 @@ def _push_pull_charts(bus, design, result: BusResult, keys, charts):
             charts.setdefault(("bus", bus.id), []).append(
                 ReviewChart(key, "timing-budget", title, "", None, err.message))
             return
+        missing = "".join(f" Not drawn: {path} ({why})." for path, why in tb.not_drawn.items())
+        if not tb.rows:
+            charts.setdefault(("bus", bus.id), []).append(
+                ReviewChart(key, "timing-budget", title, "", None,
+                            "no requirement has a time to draw." + missing))
+            return
         caption = ("Each bar is one requirement the engine checks: the time it uses against "
                    "the time available (the tick: half the clock period, or the controller's "
                    "CS lead). Flights run from the driver's datasheet reference (50 % into its "
                    "test load) to the receiver's threshold on the real line; a term in the "
                    "requirement's favour (a clock that arrives late on a setup path, data "
                    "that arrives late on a hold path) is a credit that stacks left of zero. "
-                   "The margin is written beside each bar.")
+                   "The margin is written beside each bar." + missing)
         charts.setdefault(("bus", bus.id), []).append(_draw(
             key, "timing-budget", title, caption,
             lambda tb=tb, title=title: ch.timing_budget(

@@ -193,9 +193,13 @@ class SpiBudget(_Panel):
         self.design, self.bus_result, self.analysis, self.budget_data = design, br, sa, tb
         self.figures = dict(br.figures)
         self.limits = self._limits(sa, br)
+        missing = "".join(f"; not drawn: {path} ({why})"
+                          for path, why in (tb.not_drawn.items() if tb else ()))
         if tb is None:
             self.chart.clear("no timing requirement to draw (no peripheral with the signals "
                              "the budget needs)")
+        elif not tb.rows:
+            self.chart.clear("no timing requirement has a time to draw" + missing)
         else:
             self.chart.draw(lambda: charts.spec(
                 charts.timing_budget, tb.rows, available=tb.available, margins=tb.margins,
@@ -204,7 +208,7 @@ class SpiBudget(_Panel):
                 subtitle=f"SPI mode {bus.spi_mode}; the tick is the time available"
                          + ("; bars: the board as designed, and each check's margin at "
                             "its worst corner of the tolerances (the checks table's)"
-                            if tb.worst else "")))
+                            if tb.worst else "") + missing))
         self.status_html.value = status_line(br, f"Bus {br.id} at "
                                                   f"{format_si(bus.clock, 'Hz')}")
         self._show_limits()
