@@ -275,3 +275,27 @@ def test_a_figure_without_a_number_gives_its_reason_in_the_detail(monkeypatch, c
     out = capsys.readouterr().out
     for ln in out.splitlines():
         assert not re.search(r"(clock|margin)\s+—$", ln), ln
+
+
+def test_a_bridge_with_a_device_on_another_rail_says_its_far_side_is_not_modelled(tmp_path):
+    # an SPI bus is one net per signal: a 5 V converter behind an isolator on a 3.3 V
+    # bus is checked against the controller's 3.3 V drive (its level checks fail), not
+    # the isolator's far side, which the design cannot describe; the result must say
+    # so rather than leave the failure unexplained (invented scenario)
+    design = tmp_path / "d.toml"
+    design.write_text(
+        'format = "pinlib.design/1"\ntitle = "isolated 5 V converter (invented)"\n'
+        '[[bus]]\nid = "spi0"\nprotocol = "spi"\nclock = "2 MHz"\nsupply = "3.3 V"\n'
+        'devices = [\n  { ref = "U1", part = "mcu-3v3", role = "controller" },\n'
+        '  { ref = "U5", part = "isolator-spi", side = "a" },\n'
+        '  { ref = "U2", part = "adc-spi", supply = "5 V" },\n]\n'
+        'lines.sclk = { length = "2 cm", capacitance = "1 pF/cm" }\n'
+        'lines.copi = { length = "2 cm", capacitance = "1 pF/cm" }\n', encoding="utf-8")
+    bus = check_design(load_design(design)).bus("spi0")
+    notes = [n for n in bus.notes if "not modelled" in n]
+    assert len(notes) == 1 and "U5" in notes[0] and "U2" in notes[0] and "5 V" in notes[0]
+    same = tmp_path / "same.toml"   # every device on the controller's rail: no such note
+    same.write_text(design.read_text(encoding="utf-8").replace(', supply = "5 V"', ""),
+                    encoding="utf-8")
+    assert not [n for n in check_design(load_design(same)).bus("spi0").notes
+                if "not modelled" in n]
