@@ -299,3 +299,21 @@ def test_a_bridge_with_a_device_on_another_rail_says_its_far_side_is_not_modelle
                     encoding="utf-8")
     assert not [n for n in check_design(load_design(same)).bus("spi0").notes
                 if "not modelled" in n]
+
+
+def test_a_peak_below_the_receivers_supply_reads_below_not_minus_above(tmp_path):
+    # reproducer: a 1.8 V controller's clock into a 3.3 V flash read "peak 1.8 V at
+    # U2.sclk against its abs_max 3.7 V at 3.3 V: -1.5 V above its supply"
+    design = tmp_path / "d.toml"
+    design.write_text(
+        'format = "pinlib.design/1"\ntitle = "1.8 V clock into a 3.3 V part (invented)"\n'
+        '[[bus]]\nid = "spi0"\nprotocol = "spi"\nclock = "1 MHz"\nsupply = "1.8 V"\n'
+        'devices = [\n  { ref = "U1", part = "mcu-1v8", role = "controller" },\n'
+        '  { ref = "U2", part = "nor-flash-spi", supply = "3.3 V" },\n]\n'
+        'lines.sclk = { length = "2 cm", capacitance = "1 pF/cm" }\n', encoding="utf-8")
+    bus = check_design(load_design(design)).bus("spi0")
+    chk = next(c for ln in bus.lines for c in ln.checks
+               if c.id == "overshoot" and c.subject == "U2")
+    # derived: a settled 1.8 V edge 1.5 V under the flash's 3.3 V supply
+    assert chk.value == pytest.approx(-1.5, rel=1e-9) and chk.status == "pass"
+    assert "1.5 V below its supply" in chk.message and "above its supply" not in chk.message
