@@ -153,7 +153,8 @@ def _far_side_notes(bus: Bus, controller: Device, peripherals: list,
     if not away:
         return []
     refs = ", ".join(f"{b.ref} ({b.part_id})" for b in bridges)
-    return [f"{refs}: its far side is not modelled: each signal runs as one net from its "
+    its = "its far side is" if len(bridges) == 1 else "their far sides are"
+    return [f"{refs}: {its} not modelled: each signal runs as one net from its "
             f"driver, so {', '.join(away)} {'is' if len(away) == 1 else 'are'} checked "
             f"against the controller's {format_si(own, 'V')} levels and edges, not the far "
             "side's drive (a level check there fails where the bridge would translate)"]
