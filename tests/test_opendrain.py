@@ -1128,3 +1128,37 @@ def test_batch_checks_a_lines_inputs_once_and_keeps_the_physics_errors(tmp_path,
     with pytest.raises(InputError, match="leakage"):
         build(bus, d, WorstCase(1), collected=(lim, seg_ins))
     assert calls == [False]
+
+
+def test_the_input_voltage_check_names_the_rail_its_limit_was_read_at(tmp_path):
+    # reproducer: a 1.8 V +/-10 % target (abs_max VDD + 0.5 V) on a 3.3 V +/-10 % I2C
+    # bus read "abs_max 2.12 V at its own rail 1.8 V" (2.12 V is 1.62 V + 0.5 V) and
+    # "U3 would be driven above their absolute maximum: put a level translator between
+    # them and ..." (invented scenario)
+    from pinlib.model.design import load_design
+
+    lib = tmp_path / "lib"
+    lib.mkdir()
+    (lib / "low-target.toml").write_text(
+        'format = "pinlib.part/1"\nid = "low-target"\ntitle = "Invented 1.8 V target"\n'
+        'category = "sensor"\nextends = "i2c-peripheral"\n'
+        'supply = { min = "1.6 V", max = "2 V" }\n'
+        'provenance = { basis = "datasheet", source = "invented sheet" }\n'
+        '[pins.sda]\nabs_max = "VDD + 0.5 V"\n[pins.scl]\nabs_max = "VDD + 0.5 V"\n',
+        encoding="utf-8")
+    design = tmp_path / "d.toml"
+    design.write_text(
+        'format = "pinlib.design/1"\ntitle = "mixed rails (invented)"\nlibrary = ["lib"]\n'
+        '[[bus]]\nid = "i2c0"\nprotocol = "i2c"\nsupply = "3.3 V"\n'
+        'supply_tolerance = "10 %"\npullup = "2.2 kΩ"\n'
+        'devices = [\n  { ref = "U1", part = "mcu-3v3", role = "controller" },\n'
+        '  { ref = "U3", part = "low-target", supply = "1.8 V" },\n]\n'
+        'trace = { length = "2 cm", capacitance = "1 pF/cm" }\n', encoding="utf-8")
+    bus = check_design(load_design(design)).bus("i2c0")
+    chk = next(c for c in bus.checks if c.id == "input-voltage")
+    # derived: 3.3 V + 10 % = 3.63 V on the pins; VDD + 0.5 V at 1.8 V - 10 % = 2.12 V
+    assert chk.value == pytest.approx(3.63, rel=1e-12)
+    assert chk.limit == pytest.approx(2.12, rel=1e-12) and chk.status == "fail"
+    assert "abs_max 2.12 V at its own rail 1.62 V" in chk.message
+    assert "U3 would be driven above its absolute maximum" in chk.fix
+    assert "between it and the 3.3 V rail" in chk.fix

@@ -947,3 +947,29 @@ def test_user_text_cannot_change_the_structure_of_the_markdown_report(tmp_path):
     # a link or image target only after an unescaped "]"
     assert not re.search(r"(?<!\\)\]\((?:https://tracker|javascript)", text)
     assert "Approved: every check passes" in text  # shown as text, not dropped
+
+
+def test_a_budget_with_a_requirement_without_time_is_drawn_without_it():
+    # reproducer: a 3.3 V flash answering a 5 V controller (tests/data, invented): CIPO
+    # never reaches the controller's VIH, so the CIPO setup time does not exist; the
+    # report printed "Chart not drawn (...): the timing budget terms do not add up to
+    # the engine's margin (got 'nan against nan')" and drew no budget at all
+    design = load_design(ROOT / "tests" / "data" / "spi-cipo-never-high.toml")
+    result = check_design(design)
+    bus = design.bus("flash")
+    tb = plotdata.timing_budget_data(bus, design, analysis=result.bus("flash"))
+    assert "cipo-setup U2" not in tb.margins
+    assert "never crosses" in tb.not_drawn["cipo-setup U2"]
+    assert tb.margins and all(math.isfinite(m) for m in tb.margins.values())
+    assert all(math.isfinite(d) for _, _, d in tb.rows)
+    # the others are the engine's checks (the budget's own consistency test holds)
+    for c in result.bus("flash").checks:
+        if f"{c.id} {c.subject}" in tb.margins:
+            assert tb.margins[f"{c.id} {c.subject}"] == pytest.approx(c.value - c.limit,
+                                                                       rel=1e-9, abs=1e-18)
+    built = review.build_review(design, result)
+    chart = next(c for c in built.all_charts() if c.kind == "timing-budget")
+    assert chart.svg is not None and not chart.error
+    assert "cipo-setup U2" in chart.caption and "never crosses" in chart.caption
+    md, _ = built.markdown()
+    assert not re.search(r"\bnan\b", md)

@@ -261,6 +261,8 @@ def _assemble(bus, nominal, specs, worst, seen) -> BusResult:
             return not (a == b or abs(a - b) <= 1e-12 * max(1.0, abs(b)))
 
         text = _corner_text(specs, key, moves)
+        if text == "nominal":  # worse than nominal, and alike at both ends of each
+            text = _corner_text(specs, key)  # parameter: the board it was found on
         return replace(w, message=f"{w.message} (worst corner: {text})",
                        details={**w.details, "corner": text})
 
@@ -285,7 +287,9 @@ def _assemble(bus, nominal, specs, worst, seen) -> BusResult:
             vals = [row[2][fig] for row in seen.values() if fig in row[2]]
             # a board where it does not exist (a receiver that never switches) is the worst
             low = None if None in vals else min(float(v) for v in vals)
-            out.figures[fig] = replace(out.figures[fig], value=low)
+            out.figures[fig] = replace(out.figures[fig], value=low, reason=None if low is not None
+                                       else "none at a corner of the tolerances (see the "
+                                            "checks there)")
             if low is None:
                 out.notes.append(f"{fig}: none at a corner of the tolerances (see the "
                                  "checks there)")

@@ -46,12 +46,13 @@ def table(rows: list[list[str]], indent: str, cols: int, flex: int,
 
 
 def _figures(g: Group, indent: str, cols: int) -> list[str]:
+    """A group's figures under their labels: the value column wraps (a reason in words,
+    "no section with a delay (...)") and the labels keep their width, unless the width
+    leaves the values too little room; then the labels wrap."""
     rows = [list(cells) for cells in figure_cells(g.figures)]
     if not rows:
         return []
-    # a long value (a reason in words) wraps in its own column where the labels leave it
-    # room, else the labels wrap
-    room = cols - len(indent) - max(len(r[0]) for r in rows) - 2
+    room = cols - len(indent) - 2 - max(len(r[0]) for r in rows)
     return table(rows, indent, cols, flex=1 if room >= 2 * _MIN_FLEX else 0)
 
 

@@ -140,10 +140,13 @@ def _worst_text(bus: BusResult) -> str | None:
 
 def _spi(bus: BusResult) -> list[str]:
     parts = []
-    clock = _fig_text(bus, "max_clock")
-    if "max_clock" in bus.figures and bus.figures["max_clock"].value is None:
-        clock = None
-        parts.append("max clock — (not computed; the notes in --detail say why)")
+    f = bus.figures.get("max_clock")
+    clock = None if f is None or f.value is None else _fig_text(bus, "max_clock")
+    if f is not None and f.value is None:
+        from pinlib.engines.spi.modes import NO_CLOCK_LIMIT
+
+        parts.append("max clock not limited by the parts' data" if f.reason == NO_CLOCK_LIMIT
+                     else "max clock — (not computed; the notes in --detail say why)")
     if clock:
         by = _fig_text(bus, "max_clock_limited_by")
         parts.append(f"max clock {clock}" + (f" (set by {by})" if by else ""))

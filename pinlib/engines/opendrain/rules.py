@@ -264,6 +264,7 @@ def supply_range_check(who: str, lo: float, hi: float, s_min: float, s_max: floa
     range is a hard limit: inside it passes, with no warning band.  ``source_of(low_side)``
     names the limit's source; ``ends``: the message names the rail's end (False for one
     board's rail, ``lo == hi``, whose corners the engine takes elsewhere). [V]"""
+    lo, hi = float(at_limit(lo, s_min)), float(at_limit(hi, s_max))
     m, low_side = supply_margin(lo, hi, s_min, s_max)
     if bool(low_side):
         chk = check_min("supply-range", lo, s_min, "V", source_of(True),
@@ -297,9 +298,24 @@ def supply_range_text(who: str, low: bool, rail: float, s_min: float, s_max: flo
     return f"{who} runs from {volts(rail)}{at}; its part allows {rng}"
 
 
+#: How close to a part's supply limit (relative to it) a rail's end counts as at the
+#: limit: a rail's corner is a product (1.8 V x 1.1) that floating point may put a unit
+#: in the last place beyond a limit written as the same number (1.98 V).
+AT_LIMIT = 1e-12
+
+
+def at_limit(x, limit):
+    """``x``, or ``limit`` where ``x`` lies within :data:`AT_LIMIT` of it (floats or
+    arrays). [V]"""
+    x, limit = np.asarray(x, dtype=float), np.asarray(limit, dtype=float)
+    return np.where(np.abs(x - limit) <= AT_LIMIT * np.abs(limit), limit, x)[()]
+
+
 def supply_margin(lo, hi, s_min, s_max):
     """A rail's ends against a part's supply range: the margin of the end nearer its
-    limit, and whether that is the low end (floats or arrays). [1]"""
-    m_lo, m_hi = min_margin(lo, s_min), max_margin(hi, s_max)
+    limit, and whether that is the low end (floats or arrays); an end within rounding of
+    its limit (:func:`at_limit`) is at it. [1]"""
+    m_lo = min_margin(at_limit(lo, s_min), s_min)
+    m_hi = max_margin(at_limit(hi, s_max), s_max)
     low_side = m_lo < m_hi
     return np.where(low_side, m_lo, m_hi), low_side

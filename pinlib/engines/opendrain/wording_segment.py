@@ -7,6 +7,8 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 from pinlib.engines.opendrain.batchfigures import one
 from pinlib.engines.opendrain.explain import _UNITS, segment_notes
 from pinlib.engines.opendrain.inputs import (
@@ -157,6 +159,14 @@ def _timing(w: Words, sb) -> None:
                  f"{_f(lim.t_su_dat, 's')}", subject=f"SDA {ref}"))
 
 
+def _abs_max_rail(t, seg) -> float:
+    """The end of a device's own rail at which its abs_max is lowest: the rail the
+    input-voltage check reads its limit at (the engine's ``_corner_values``). [V]"""
+    tol = seg.supply_tolerance
+    ends = np.array([t.vdd * (1 - tol), t.vdd * (1 + tol)])
+    return float(ends[int(np.argmin(np.asarray(t.pin.abs_max.at(ends), dtype=float)))])
+
+
 def _domains(w: Words, taps: list) -> None:
     """abs_max against the pull-up rail; rails inside the parts' supply ranges."""
     seg_in, grp = w.seg_in, w.grp
@@ -166,16 +176,18 @@ def _domains(w: Words, taps: list) -> None:
         capped = [t for t in taps if t.pin.abs_max is not None]
         k, _ = row_corner(bc)
         t = capped[k]
+        at = (f"at its own rail {_f(_abs_max_rail(t, seg_in.segment), 'V')}" if t.own
+              else "at the pull-up rail")
         chk = make(bc, t.source("abs_max"),
                    f"pull-up rail up to {_f(bc.value[0], 'V')} on the pins of {t.label} "
-                   f"(abs_max {_f(bc.limit[0], 'V')} at its own rail {_f(t.vdd, 'V')})",
-                   subject=t.label)
+                   f"(abs_max {_f(bc.limit[0], 'V')} {at})", subject=t.label)
         bad = [capped[j] for j, m in enumerate(bc.row_margins[0].tolist()) if m < 0]
         if bad:
             failing = sorted({x.label for x in bad})
             rails = sorted({x.vdd for x in bad})
-            chk.fix = (f"{', '.join(failing)} would be driven above their absolute maximum: put "
-                       f"a level translator between them and the "
+            its, them = ("its", "it") if len(failing) == 1 else ("their", "them")
+            chk.fix = (f"{', '.join(failing)} would be driven above {its} absolute maximum: "
+                       f"put a level translator between {them} and the "
                        f"{_f(seg_in.segment.supply, 'V')} rail, or pull this segment up to "
                        f"{_f(rails[0], 'V')} if every device on it accepts that rail")
             chk.message += f"; {chk.fix}"

@@ -97,7 +97,7 @@ def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
         check_max(
             "overshoot", above, allowed, "V", p.source("abs_max"),
             f"peak {_fmt(peak, 'V')} at {p.label}{by_peak} against its abs_max "
-            f"{_fmt(abs_max, 'V')} at {_fmt(p.vdd, 'V')}: {_fmt(above, 'V')} above its "
+            f"{_fmt(abs_max, 'V')} at {_fmt(p.vdd, 'V')}: {_relative(above)} its "
             f"supply, {_fmt(allowed, 'V')} allowed{corner}", warn_margin=warn, subject=p.ref,
             details={"peak": peak, "abs_max": abs_max, "supply": p.vdd}),
         # the part format records the upper rating only: the low limit is inferred
@@ -106,6 +106,12 @@ def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
             f"dip to {_fmt(-dip, 'V')} at {p.label}{by_dip}; {_fmt(low_allowed, 'V')} below "
             f"ground allowed{corner}", warn_margin=warn, subject=p.ref)),
     ]
+
+
+def _relative(above: float) -> str:
+    """How far a peak lies from the pin's supply, in words: ``400 mV above`` or, for a
+    driver on a lower rail, ``1.5 V below`` (never "-1.5 V above")."""
+    return f"{_fmt(above, 'V')} above" if above >= 0 else f"{_fmt(-above, 'V')} below"
 
 
 def _corner(cases, which: str) -> str:

@@ -135,6 +135,31 @@ def line_flights(sig: str, la, controller: Device, p: Device, bus: Bus):
     return case.flight_both(e) if sig == "copi" else case.flight(e, "fall")
 
 
+def _far_side_notes(bus: Bus, controller: Device, peripherals: list,
+                    bridges: list) -> list[str]:
+    """What a bridge on an SPI bus leaves out: each signal is one net from its driver to
+    every device, the bridge a load and a delay (``t_pd``) in it, so a device on another
+    rail than the controller's is checked against the controller's levels and edges,
+    not those of the bridge's far side (the design format has no place for that side
+    on an SPI bus). One note naming them, or none. [1]"""
+    if not bridges:
+        return []
+    from pinlib.core.quantity import format_si
+    from pinlib.engines.pushline import device_supply
+
+    own = device_supply(controller, bus)
+    away = [f"{p.ref} at {format_si(device_supply(p, bus), 'V')}" for p in peripherals
+            if abs(device_supply(p, bus) - own) > 1e-9 * own]
+    if not away:
+        return []
+    refs = ", ".join(f"{b.ref} ({b.part_id})" for b in bridges)
+    its = "its far side is" if len(bridges) == 1 else "their far sides are"
+    return [f"{refs}: {its} not modelled: each signal runs as one net from its "
+            f"driver, so {', '.join(away)} {'is' if len(away) == 1 else 'are'} checked "
+            f"against the controller's {format_si(own, 'V')} levels and edges, not the far "
+            "side's drive (a level check there fails where the bridge would translate)"]
+
+
 def _sourced_text(device: Device, name: str) -> str:
     """Where a timing value of a device's part comes from, for a check's ``source``: the
     part whose file set it (for a value inherited through ``extends``, the class it came
@@ -270,6 +295,7 @@ def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
             t_bridge += float(b.part.timing.t_pd.at())
             notes.append(f"{b.ref} ({b.part_id}) t_pd {b.part.timing.t_pd.text} in every path "
                          "(twice on the CIPO round trip)")
+    notes += _far_side_notes(bus, controller, peripherals, bridges)
     periph_t = []
     for p in peripherals:
         sclk_f = None if "sclk" not in lines else line_flights(

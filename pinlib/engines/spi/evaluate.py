@@ -11,7 +11,12 @@ from pinlib.engines.pushline import (
 )
 from pinlib.engines.spi.analysis import SpiAnalysis, spi_analysis
 from pinlib.engines.spi.budget import Term
-from pinlib.engines.spi.modes import TIMING_REFERENCE, _fmt
+from pinlib.engines.spi.modes import (
+    MARGIN_NOT_COMPUTED,
+    NO_CLOCK_LIMIT,
+    TIMING_REFERENCE,
+    _fmt,
+)
 from pinlib.model.design import Bus, Design
 from pinlib.model.result import BusResult, Check, check_max, check_min
 
@@ -76,15 +81,18 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
     for la in sa.lines.values():
         res.lines.append(la.result)
     (f_top, by, _), (f_edge, edge_sig) = sa.clock_limits()[0], sa.edge_rule_clock()
-    res.figure("max_clock", f_top if f_top > 0 else None, "Hz",
-               None if f_top > 0 else f"none: no clock satisfies {by}")
-    res.figure("max_clock_limited_by", by, "")
-    res.figure("max_clock_edge_rule", f_edge, "Hz")
     if f_top <= 0:
+        res.figure("max_clock", None, "Hz", reason=f"none: no clock satisfies {by}")
         res.notes.append(f"max_clock: none, no clock satisfies {by}")
     elif math.isfinite(f_top):
+        res.figure("max_clock", f_top, "Hz")
         res.notes.append(f"max_clock {_fmt(f_top, 'Hz')}: the highest clock the timing "
                          f"budget and the parts' f_max allow, set by {by}")
+    else:  # no number to give: in words, never as infinity
+        res.figure("max_clock", None, "Hz", reason=NO_CLOCK_LIMIT)
+        res.notes.append(f"max_clock: {NO_CLOCK_LIMIT}")
+    res.figure("max_clock_limited_by", by, "")
+    res.figure("max_clock_edge_rule", f_edge, "Hz")
     if math.isfinite(f_edge):
         # on a route the edges are each receiver's at its own point, not a far end's
         edges = ("receiver's edge (at its own point of a route)"
@@ -95,13 +103,14 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
                          "limit")
     for fig, tid in MARGIN_FIGURES:
         if tid not in worst:
-            reason = "not computed (signal not routed or data missing)"
-            res.notes.append(f"{fig}: {reason}")
+            reason = MARGIN_NOT_COMPUTED
         elif tid in why:
             reason = f"none, {why[tid]}"
-            res.notes.append(f"{fig}: {reason}")
         else:
-            reason = None if worst[tid] is not None else "none: no finite time available"
+            reason = None if worst[tid] is not None else \
+                "none: a receiver never switches (see the checks)"
+        if reason is not None and (tid not in worst or tid in why):
+            res.notes.append(f"{fig}: {reason}")
         # a figure without a number says why, in place of it (it read "—")
         res.figure(fig, worst.get(tid), "s", reason)
     return res

@@ -24,6 +24,11 @@ MODE_SOURCE = ("SPI clock modes (CPOL/CPHA) as described by controller and perip
                "datasheets (common practice; no single published standard)")
 CS_LEAD_SOURCE = ("controller asserts CS half a clock period before the first SCLK edge "
                   "when its class records no t_cs_setup (common practice, no source)")
+#: Why the figure ``max_clock`` has no number where nothing bounds the clock.
+NO_CLOCK_LIMIT = ("not limited by the parts' data (no timing requirement or f_max "
+                  "bounds it; the notes say what the parts do not record)")
+#: Why a timing-margin figure has no number: no such requirement was evaluated.
+MARGIN_NOT_COMPUTED = "not computed (signal not routed or data missing)"
 TIMING_REFERENCE = ("output times referred to 50 % of the supply at the pin into the "
                     "part's test_load (common practice, no source)")
 

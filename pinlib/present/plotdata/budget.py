@@ -40,6 +40,10 @@ class TimingBudgetData:
         the check's margin there (its value minus its limit, the figure of the checks
         table), its status and the corner. The bars, ``margins`` and ``status`` are the
         board as designed. [s, 1, 1]
+    not_drawn : dict of str to str
+        A path that has no time to draw (a signal that never crosses its receiver's
+        threshold: the engine's check fails without a value) and why, in words; it has
+        no bar, margin or status here. [1]
     """
 
     bus: str
@@ -51,6 +55,12 @@ class TimingBudgetData:
     status: dict
     sources: dict
     worst: dict = field(default_factory=dict)
+    not_drawn: dict = field(default_factory=dict)
+
+
+#: Why a path has no bar: its available time does not exist.
+NO_TIME = ("no time available: {what} never crosses the receiving input's threshold "
+           "(see the check)")
 
 
 # =========================================================================== SPI budget
@@ -98,7 +108,8 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
     -------
     TimingBudgetData
         One path per requirement the engine checks (``copi-setup U7``...), each with
-        the components it uses up, the time available and the margin.
+        the components it uses up, the time available and the margin; a requirement
+        without a time (a signal that never switches its receiver) in ``not_drawn``.
 
     Notes
     -----
@@ -114,9 +125,14 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
     analysis = workings(bus, design, analysis)
     clock = float(bus.clock)
     period = 1.0 / clock
-    rows, avail, margins, status, sources, worst = [], {}, {}, {}, {}, {}
+    rows, avail, margins, status, sources, worst, not_drawn = [], {}, {}, {}, {}, {}, {}
     for term in analysis.terms:
         path = f"{term.id} {term.subject}"
+        if not math.isfinite(float(term.available(period))):
+            never = sorted({k.split("_")[0].upper() for k, v in term.parts.items()
+                            if isinstance(v, float) and not math.isfinite(v)})
+            not_drawn[path] = NO_TIME.format(what=" and ".join(never) or "a signal")
+            continue
         lead = term.parts.get("lead")
         lead_s = float(lead) if isinstance(lead, (int, float)) else 0.0
         used = 0.0
@@ -149,7 +165,7 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
         if c is not None:
             worst[path] = (float(c.value) - float(c.limit), c.status, c.details["corner"])
     return TimingBudgetData(bus.id, clock, period, rows, avail, margins, status, sources,
-                            worst)
+                            worst, not_drawn)
 
 
 def _corner_checks(result) -> dict:

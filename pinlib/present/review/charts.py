@@ -103,27 +103,42 @@ def _push_pull_charts(bus, design, result: BusResult, keys, charts):
                     subtitle=f"at {rx}")))
     sa = plotdata.workings(bus, design, result) if bus.protocol == "spi" else None
     if sa is not None and sa.terms:
-        title = f"SPI timing budget: {bus.id} at {_f(bus.clock, 'Hz')}"
-        key = keys(bus.id, "timing-budget")
-        try:
-            tb = plotdata.timing_budget_data(bus, design, analysis=sa)
-        except PinlibError as err:
-            charts.setdefault(("bus", bus.id), []).append(
-                ReviewChart(key, "timing-budget", title, "", None, err.message))
-            return
-        caption = ("Each bar is one requirement the engine checks: the time it uses against "
-                   "the time available (the tick: half the clock period, or the controller's "
-                   "CS lead). Flights run from the driver's datasheet reference (50 % into its "
-                   "test load) to the receiver's threshold on the real line; a term in the "
-                   "requirement's favour (a clock that arrives late on a setup path, data "
-                   "that arrives late on a hold path) is a credit that stacks left of zero. "
-                   "The margin is written beside each bar.")
-        charts.setdefault(("bus", bus.id), []).append(_draw(
-            key, "timing-budget", title, caption,
-            lambda tb=tb, title=title: ch.timing_budget(
-                tb.rows, available=tb.available, margins=tb.margins, status=tb.status,
-                title=title, subtitle=f"SPI mode {bus.spi_mode}, period "
-                                      f"{_f(tb.period, 's')}")))
+        _budget_chart(bus, design, sa, keys, charts)
+
+
+def _budget_chart(bus, design, sa, keys, charts):
+    """The SPI timing budget of a bus as stacked bars (a requirement without a time
+    is named in the caption, not drawn)."""
+    from pinlib.present import charts as ch
+    from pinlib.present import plotdata
+
+    title = f"SPI timing budget: {bus.id} at {_f(bus.clock, 'Hz')}"
+    key = keys(bus.id, "timing-budget")
+    try:
+        tb = plotdata.timing_budget_data(bus, design, analysis=sa)
+    except PinlibError as err:
+        charts.setdefault(("bus", bus.id), []).append(
+            ReviewChart(key, "timing-budget", title, "", None, err.message))
+        return
+    missing = "".join(f" Not drawn: {path} ({why})." for path, why in tb.not_drawn.items())
+    if not tb.rows:
+        charts.setdefault(("bus", bus.id), []).append(
+            ReviewChart(key, "timing-budget", title, "", None,
+                        "no requirement has a time to draw." + missing))
+        return
+    caption = ("Each bar is one requirement the engine checks: the time it uses against "
+               "the time available (the tick: half the clock period, or the controller's "
+               "CS lead). Flights run from the driver's datasheet reference (50 % into its "
+               "test load) to the receiver's threshold on the real line; a term in the "
+               "requirement's favour (a clock that arrives late on a setup path, data "
+               "that arrives late on a hold path) is a credit that stacks left of zero. "
+               "The margin is written beside each bar." + missing)
+    charts.setdefault(("bus", bus.id), []).append(_draw(
+        key, "timing-budget", title, caption,
+        lambda tb=tb, title=title: ch.timing_budget(
+            tb.rows, available=tb.available, margins=tb.margins, status=tb.status,
+            title=title, subtitle=f"SPI mode {bus.spi_mode}, period "
+                                  f"{_f(tb.period, 's')}")))
 
 
 def _coupling_charts(result, keys, charts):

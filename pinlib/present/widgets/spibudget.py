@@ -14,7 +14,7 @@ from pinlib.core.tomlfile import tomllib
 from pinlib.core.valueclass import value_class
 from pinlib.engines.dispatch import evaluate_bus
 from pinlib.model.design import Design, design_from_text, load_design
-from pinlib.model.result import BusResult
+from pinlib.model.result import BusResult, figure_text
 from pinlib.present import charts, plotdata
 from pinlib.present.report import format_value
 from pinlib.present.widgets.common import (
@@ -193,9 +193,13 @@ class SpiBudget(_Panel):
         self.design, self.bus_result, self.analysis, self.budget_data = design, br, sa, tb
         self.figures = dict(br.figures)
         self.limits = self._limits(sa, br)
+        missing = "".join(f"; not drawn: {path} ({why})"
+                          for path, why in (tb.not_drawn.items() if tb else ()))
         if tb is None:
             self.chart.clear("no timing requirement to draw (no peripheral with the signals "
                              "the budget needs)")
+        elif not tb.rows:
+            self.chart.clear("no timing requirement has a time to draw" + missing)
         else:
             self.chart.draw(lambda: charts.spec(
                 charts.timing_budget, tb.rows, available=tb.available, margins=tb.margins,
@@ -204,7 +208,7 @@ class SpiBudget(_Panel):
                 subtitle=f"SPI mode {bus.spi_mode}; the tick is the time available"
                          + ("; bars: the board as designed, and each check's margin at "
                             "its worst corner of the tolerances (the checks table's)"
-                            if tb.worst else "")))
+                            if tb.worst else "") + missing))
         self.status_html.value = status_line(br, f"Bus {br.id} at "
                                                   f"{format_si(bus.clock, 'Hz')}")
         self._show_limits()
@@ -221,7 +225,7 @@ class SpiBudget(_Panel):
     def _show_limits(self) -> None:
         f = self.figures.get("max_clock")
         top = self.limits[0] if self.limits else None
-        text = f"Highest clock: <b>{e(format_value(f.value, f.unit))}</b>" if f else ""
+        text = f"Highest clock: <b>{e(figure_text(f))}</b>" if f else ""
         if top is not None:
             text += f", set by <b>{e(top.label)}</b> ({e(top.source)})"
         self.max_html.value = block(text, size=13)
