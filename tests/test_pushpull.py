@@ -330,6 +330,12 @@ def test_ringing_fails_on_the_clock_and_warns_on_data(lib):
     assert rs.status == "fail" and rs.value >= 1
     assert rc_.status == "warn" and rc_.value == rs.value
     assert rs.details["fall_recrossings"] >= 1
+    # the clock fails against the receiver's own thresholds, and its source names them
+    # (it cited only "common practice, no source", a rule of thumb's, beside a FAIL);
+    # on data the re-crossing is a rule of thumb, and its source says so
+    assert "v_il" in rs.source and "v_ih" in rs.source
+    assert "common practice, no source" not in rs.source
+    assert "common practice, no source" in rc_.source
     # a matched series resistor removes it
     ok = controller_line(lib, [trace50(0.2)], 39.0, signal="sclk", part="pp-ctrl-asym")
     assert ok.result.check("ringing").status == "pass"

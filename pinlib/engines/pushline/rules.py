@@ -42,6 +42,11 @@ TERMINATION_RULE = ("series source termination Rs = Z0 - r_out, nearest E24 valu
 
 _RINGING_SOURCE = ("an input that re-crosses its threshold after the first crossing may "
                    "switch twice (common practice, no source)")
+#: The limit of ringing on a clock line: the receiver's own thresholds (``{v_il}``,
+#: ``{v_ih}``: their sources), which assure its level only outside the band between them.
+CLOCK_RINGING_SOURCE = ("{v_il}; {v_ih}: the input's level is assured only outside the "
+                        "band between them, so a clock that re-enters it after crossing "
+                        "may switch twice")
 
 #: Pin function of each SPI signal.
 SIGNAL_FUNCTION = dict(protocol("spi").signals)
