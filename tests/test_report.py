@@ -269,3 +269,19 @@ def test_the_bus_line_gives_the_effective_pull_up_beside_the_chosen_one(tmp_path
     # no addition where the lines see the resistor alone
     plain = check_file(DEMO_ARG)
     assert "with the pull-ups in parts" not in bus_line(plain.bus("sensors"))
+
+
+def test_a_bus_line_names_the_failing_check_as_its_worst_not_a_deeper_warning():
+    # invented: an SPI bus whose edge-time rule of thumb warns at -89 % while a setup
+    # check fails at -5 %; "worst margin -89 % (Edge time)" beside FAIL pointed the
+    # reader at a warning, away from the check that fails
+    from pinlib.model.result import BusResult, Check
+    from pinlib.present.report import bus_line
+
+    bus = BusResult(id="s", protocol="spi")
+    bus.add(Check("edge-time", "warn", 9e-9, 1e-9, "s", -0.89, "rule of thumb", "slow"))
+    bus.add(Check("copi-setup", "fail", 1.9e-9, 2e-9, "s", -0.05, "datasheet", "short",
+                  subject="U2"))
+    bus.add(Check("f-max", "pass", 1e6, 2e6, "Hz", 0.5, "datasheet", "ok", subject="U2"))
+    line = bus_line(bus)
+    assert "worst margin −5 % (COPI setup U2)" in line.replace("-", "−"), line

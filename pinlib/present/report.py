@@ -20,7 +20,7 @@ import math
 import re
 
 from pinlib.core.labels import check_label, humanize
-from pinlib.model.result import BusResult, Check, DesignResult, figure_text, margin_text
+from pinlib.model.result import STATUSES, BusResult, Check, DesignResult, figure_text, margin_text
 from pinlib.present.detail import detail_lines
 from pinlib.present.terminal import DEFAULT_WIDTH, status_word, wrap
 from pinlib.present.values import counts, format_value, with_fix
@@ -119,14 +119,17 @@ def _open_drain(group) -> str:
 
 
 def _worst(bus: BusResult) -> tuple[Check | None, str | None]:
-    """The check of the bus with the smallest relative margin, and its line's signal."""
-    best, where, key = None, None, math.inf
+    """The check of the bus with the worst status and, among those, the smallest
+    relative margin, and its line's signal (a rule of thumb's warning far below its
+    limit is not named beside a check that fails)."""
+    best, where, key = None, None, (1, math.inf)
     for _, signal, c in bus.all_checks():
         if c.margin is None or c.margin_unit is not None:
             continue
         m = float(c.margin)
-        if math.isfinite(m) and m < key:
-            best, where, key = c, signal, m
+        k = (-STATUSES.index(c.status) if c.status in STATUSES else 0, m)
+        if math.isfinite(m) and k < key:
+            best, where, key = c, signal, k
     return best, where
 
 
