@@ -3134,6 +3134,21 @@ def _(env):
     return _ibis_fails(env, _ibis(lambda t: t.replace("Rref = 50", "Rref = fifty")))
 
 
+@case("IBIS_NUMBER_TOO_LARGE")
+def _(env):
+    return _ibis_fails(env, _ibis(lambda t: t.replace("Rref = 50", "Rref = 1e999")))
+
+
+@case("IBIS_FIXTURE_OUT_OF_RANGE", M.IBIS_FIXTURE_OUT_OF_RANGE.format(name="R_fixture"))
+def _(env):
+    return _ibis_fails(env, _ibis(lambda t: t.replace("R_fixture = 50", "R_fixture = -50")))
+
+
+@case("IBIS_TIME_NOT_INCREASING")
+def _(env):
+    return _ibis_fails(env, _ibis(lambda t: t.replace("2n    2.2", "1n    2.2")))
+
+
 @case("IBIS_NA_NOT_ALLOWED")
 def _(env):
     return _ibis_fails(env, _ibis(lambda t: t.replace("Vinl = 0.8V", "Vinl = NA")))

@@ -543,6 +543,9 @@ SERVER_OUTPUT_HINT = "its own messages are above"
 
 # ---------------------------------------------------------------- IBIS files (library.ibis)
 IBIS_NOT_A_NUMBER = "not a number in IBIS notation"
+IBIS_NUMBER_TOO_LARGE = "a number too large to hold (it overflows to infinity)"
+IBIS_FIXTURE_OUT_OF_RANGE = "{name} out of range"
+IBIS_TIME_NOT_INCREASING = "a waveform row not later than the row before"
 IBIS_NA_NOT_ALLOWED = "NA where a value is needed"
 IBIS_WRONG_COLUMNS = "{found} columns where {expected} belong"
 IBIS_MISSING_KEYWORD = "the file has no {keyword}"
