@@ -23,6 +23,7 @@ import errno
 import os
 import random
 import signal
+import stat
 import subprocess
 import sys
 import tempfile
@@ -672,6 +673,31 @@ def test_atomic_write_keeps_the_old_text_when_interrupted_by_any_exception(tmp_p
     monkeypatch.undo()
     assert path.read_text(encoding="utf-8") == "a = 1\n"
     assert [p.name for p in tmp_path.iterdir()] == ["x.toml"]
+
+
+@pytest.mark.skipif(not hasattr(os, "mkfifo"), reason="named pipes are POSIX")
+def test_a_target_that_is_no_regular_file_is_refused_and_left_as_it_was(tmp_path, monkeypatch,
+                                                                         capsys):
+    # `pinlib report --html /dev/full` once replaced the device node with a regular file
+    # (the rename of the temporary file); a named pipe stands in for the device here.
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    pipe = tmp_path / "out.md"
+    os.mkfifo(pipe)
+    link = tmp_path / "link.json"
+    link.symlink_to(pipe)
+    with pytest.raises(WriteError) as info:
+        atomic_write(pipe, "a = 1\n")
+    assert info.value.file == str(pipe)
+    design = tmp_path / "design.toml"
+    design.write_text(SMALL_I2C, encoding="utf-8")
+    for argv in (["schema", "design", "--output", str(link)],
+                 ["report", str(design), "--md", str(pipe)]):
+        code = main(argv)
+        err = capsys.readouterr().err
+        assert code == 2 and "not a regular file" in err and str(pipe) in err, argv
+        assert "Traceback" not in err
+    assert stat.S_ISFIFO(pipe.stat().st_mode) and link.is_symlink()
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["design.toml", "link.json", "out.md"]
 
 
 # A writer that works through several files: it creates new parts and records values into

@@ -231,6 +231,12 @@ def _(env):
     return _fails(lambda e: atomic_write(e.tmp / "x.toml", "x = 1\n"), env)
 
 
+@case("NOT_A_REGULAR_TARGET")
+def _(env):
+    (env.tmp / "folder.toml").mkdir()
+    return _fails(lambda e: atomic_write(e.tmp / "folder.toml", "x = 1\n"), env)
+
+
 # ---------------------------------------------------------------- quantity
 @case("YES_NO_AS_QUANTITY")
 def _(env):

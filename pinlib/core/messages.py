@@ -54,6 +54,8 @@ CANNOT_LOCK = "cannot lock the file: {reason}"
 LOCK_IS_A_LINK = "its lock file {lock} is a symbolic link, which pinlib does not follow"
 CANNOT_WRITE_IN_FOLDER = "cannot write in this folder: {reason}"
 CANNOT_WRITE_FILE = "cannot write the file: {reason}"
+NOT_A_REGULAR_TARGET = ("not a regular file (a folder, a device, a pipe or a socket is "
+                        "never written over)")
 
 # ---------------------------------------------------------------- pinlib/core/quantity.py
 YES_NO_AS_QUANTITY = "a yes/no value where a quantity belongs"

@@ -33,7 +33,8 @@ try:
 except ImportError:  # pragma: no cover - tomli is a dependency; the standard library's
     import tomllib
 
-__all__ = ["load", "line_index", "line_of", "dotted", "atomic_write", "file_lock"]
+__all__ = ["load", "line_index", "line_of", "dotted", "atomic_write", "refuse_irregular_target",
+           "file_lock"]
 
 _KEY = r'(?:[A-Za-z0-9_-]+|"[^"]*"|\'[^\']*\')'
 _DOTTED = rf"{_KEY}(?:\s*\.\s*{_KEY})*"
@@ -355,10 +356,25 @@ def _umask() -> int:
     return mask
 
 
+def refuse_irregular_target(path: str | os.PathLike) -> None:
+    """Raise a WriteError when ``path`` (or what its link leads to) exists and is not a
+    regular file: a folder, a device (``/dev/full``), a pipe or a socket.  Replaced by a
+    regular file it would be gone (a device node for every user of the machine).  A
+    command calls it before its work, so that the refusal comes at once."""
+    try:
+        mode = os.stat(path).st_mode
+    except OSError:
+        return  # a new file (or one whose trouble the write itself names)
+    if not stat.S_ISREG(mode):
+        raise WriteError(M.NOT_A_REGULAR_TARGET, file=str(path),
+                         expected="the name of a regular file, or of a new one")
+
+
 def atomic_write(path: str | os.PathLike, text: str) -> None:
     """Replace ``path`` with ``text`` atomically; on any failure the old file stays whole.
 
-    When ``path`` is a link, the file it leads to is replaced (the link stays).  Stale
+    When ``path`` is a link, the file it leads to is replaced (the link stays).  A path
+    that is not a regular file (a folder, a device, a pipe) is refused, never replaced.  Stale
     temporary files of stopped writers in the folder are removed first.  The text goes
     to a temporary file in the same folder, is flushed and synced, takes the old file's
     permission bits (a new file those of the umask), and then replaces the old file in
@@ -368,6 +384,7 @@ def atomic_write(path: str | os.PathLike, text: str) -> None:
 
     # Through a link: the file it leads to is replaced, and the link stays a link.
     path = Path(os.path.realpath(path)) if os.path.islink(path) else Path(path)
+    refuse_irregular_target(path)
     folder = path.parent if str(path.parent) else Path(".")
     _remove_stale_temporaries(folder)
     try:

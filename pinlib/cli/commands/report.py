@@ -147,7 +147,7 @@ def _remove_stale_charts(folder: Path, keep: set) -> int:
 
 def run(args) -> int:
     from pinlib.core.errors import InputError
-    from pinlib.core.tomlfile import atomic_write
+    from pinlib.core.tomlfile import atomic_write, refuse_irregular_target
     from pinlib.engines.dispatch import check_design
     from pinlib.model.design import load_design
     from pinlib.present.review import build_review
@@ -164,6 +164,7 @@ def run(args) -> int:
     if not target.parent.is_dir() and str(target.parent):
         raise InputError(M.REPORT_FOLDER_MISSING, file=str(target),
                          hint=f"create {target.parent} first")
+    refuse_irregular_target(target)  # /dev/full: refused now, not after the work
     design = load_design(args.design, library_folders=args.library)
     result = check_design(design)
     threshold = DEFAULT_THRESHOLD if args.threshold is None else args.threshold
