@@ -160,6 +160,14 @@ def _(env):
     return err.message
 
 
+@case("BYTE_ORDER_MARK")
+def _(env):
+    (env.tmp / "bom.toml").write_bytes(b"\xef\xbb\xbfformat = \"pinlib.design/1\"\n")
+    err = _fails(lambda e: load_design(e.tmp / "bom.toml"), env)
+    assert err.line == 1 and "without a byte-order mark" in err.message
+    return err
+
+
 @case("NOT_A_REGULAR_FILE")
 def _(env):
     os.mkfifo(env.tmp / "pipe.toml")  # read, it would wait for a writer forever

@@ -172,6 +172,9 @@ def load(path: str | os.PathLike, *, error=InputError,
         raise error(M.NOT_UTF8, file=str(p), line=line,
                     hint=M.NOT_UTF8_WHERE.format(byte=f"0x{raw[exc.start]:02x}",
                                                  column=column)) from None
+    if text.startswith("\ufeff"):  # TOML has none; the parser's "Invalid statement" hid it
+        raise error(M.BYTE_ORDER_MARK, file=str(p), line=1,
+                    hint="save the file as UTF-8 without a byte-order mark")
     if "\r" in text:  # as a file opened in text mode reads it
         text = text.replace("\r\n", "\n").replace("\r", "\n")
     try:
