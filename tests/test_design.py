@@ -108,6 +108,13 @@ BAD = {
     "bus-trace-with-segments": (SEGMENTS.replace('protocol = "i2c"\n', 'protocol = "i2c"\ntrace = '
                                                  '{ length = "5 cm", capacitance = "1 pF/cm" }\n'),
                                 "bus[0].trace", 8, ["trace goes in the segments"]),
+    # An empty id was taken: the check printed "PASS  (I2C)", and no coupling could name
+    # the bus ("BUS.SIGNAL" with an empty BUS is refused as no line).
+    "empty-bus-id": (ONE_BUS.replace('id = "b"', 'id = ""').replace("PART", "t-target"),
+                     "bus[0].id", 6, ["text shorter than 1 character", "(got '')"]),
+    "empty-segment-id": (SEGMENTS.replace('[[bus.segment]]\nsupply = "1.8 V"',
+                                          '[[bus.segment]]\nid = ""\nsupply = "1.8 V"'),
+                         "bus[0].segment[1].id", 17, ["text shorter than 1 character"]),
 }
 
 
@@ -141,6 +148,15 @@ def test_bad_design_exits_2_with_the_message(tmp_path, name, capsys):
     assert err.startswith("pinlib: error: ")
     assert f"{path}:{line}" in err and f"field '{field}'" in err
     assert "Traceback" not in err
+
+
+def test_an_empty_title_is_refused(tmp_path, capsys):
+    # Once taken: the closing line read "PASS : 0 pass, ..." for a board with no name.
+    path = tmp_path / "bad.toml"
+    path.write_text(HEAD.replace('title = "bad design"', 'title = ""'), encoding="utf-8")
+    assert main(["check", str(path)]) == 2
+    err = capsys.readouterr().err
+    assert f"{path}:2, field 'title': text shorter than 1 character" in err
 
 
 def test_missing_file_exits_2(tmp_path, capsys):
