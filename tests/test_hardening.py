@@ -700,6 +700,28 @@ def test_a_target_that_is_no_regular_file_is_refused_and_left_as_it_was(tmp_path
     assert sorted(p.name for p in tmp_path.iterdir()) == ["design.toml", "link.json", "out.md"]
 
 
+def test_a_file_saved_with_crlf_keeps_its_line_endings_when_written(tmp_path, team,
+                                                                    capsys):
+    # The readers take CRLF (a file saved on Windows), but `swap --write` and `parts
+    # record` once wrote every line back with LF: a diff of the whole file for one value.
+    design = tmp_path / "design.toml"
+    design.write_bytes(SMALL_I2C.replace("\n", "\r\n").encode("utf-8"))
+    assert main(["swap", str(design), "U2=rtc-i2c", "--write"]) in (0, 1)
+    capsys.readouterr()
+    raw = design.read_bytes()
+    assert b'part = "rtc-i2c"' in raw and raw.count(b"\n") == raw.count(b"\r\n")
+    part = team / "mine.toml"
+    part.write_bytes(part.read_bytes().replace(b"\n", b"\r\n"))
+    record_value(load_library([team]), "mine", "sda.c_in", "6 pF", "rev C, table 5")
+    raw = part.read_bytes()
+    assert b'"6 pF"' in raw and raw.count(b"\n") == raw.count(b"\r\n")
+    # derived from the value recorded above
+    assert load_library([team]).parts["mine"].pins["sda"].c_in.value == 6e-12
+    fresh = tmp_path / "new.toml"
+    atomic_write(fresh, "a = 1\nb = 2\n")  # a new file: LF, as written
+    assert fresh.read_bytes() == b"a = 1\nb = 2\n"
+
+
 # A writer that works through several files: it creates new parts and records values into
 # them and into a shared part, printing each operation once it has completed.
 WRITER = textwrap.dedent("""\

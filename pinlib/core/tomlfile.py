@@ -373,11 +373,24 @@ def refuse_irregular_target(path: str | os.PathLike) -> None:
                          expected="the name of a regular file, or of a new one")
 
 
+def _line_ending(path: Path) -> str:
+    """``"\r\n"`` when the file at ``path`` ends its first line so (a file saved on
+    Windows), else ``"\n"`` (also for a new file or one that cannot be read)."""
+    try:
+        with open(path, "rb") as fh:
+            head = fh.read(64 * 1024)
+    except OSError:
+        return "\n"
+    end = head.find(b"\n")
+    return "\r\n" if end > 0 and head[end - 1:end] == b"\r" else "\n"
+
+
 def atomic_write(path: str | os.PathLike, text: str) -> None:
     """Replace ``path`` with ``text`` atomically; on any failure the old file stays whole.
 
     When ``path`` is a link, the file it leads to is replaced (the link stays).  A path
-    that is not a regular file (a folder, a device, a pipe) is refused, never replaced.  Stale
+    that is not a regular file (a folder, a device, a pipe) is refused, never replaced.
+    A file whose lines end in CRLF keeps them (its text is read with LF).  Stale
     temporary files of stopped writers in the folder are removed first.  The text goes
     to a temporary file in the same folder, is flushed and synced, takes the old file's
     permission bits (a new file those of the umask), and then replaces the old file in
@@ -388,6 +401,8 @@ def atomic_write(path: str | os.PathLike, text: str) -> None:
     # Through a link: the file it leads to is replaced, and the link stays a link.
     path = Path(os.path.realpath(path)) if os.path.islink(path) else Path(path)
     refuse_irregular_target(path)
+    if "\r" not in text and _line_ending(path) == "\r\n":
+        text = text.replace("\n", "\r\n")  # a file read with CRLF (load) keeps them
     folder = path.parent if str(path.parent) else Path(".")
     _remove_stale_temporaries(folder)
     try:
