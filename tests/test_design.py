@@ -3,6 +3,7 @@ file, line and field, and ``pinlib check`` turns them into exit 2 with that mess
 
 from __future__ import annotations
 
+import os
 from pathlib import Path
 
 import pytest
@@ -312,6 +313,29 @@ def test_missing_library_folder_blames_its_source(tmp_path, monkeypatch, capsys)
     with pytest.raises(DesignError) as info:
         load_design(own)
     assert (info.value.line, info.value.field) == (3, "library[0]")
+
+
+@pytest.mark.skipif(os.name != "posix", reason="POSIX system folders")
+def test_a_system_folder_as_library_blames_its_source(tmp_path, monkeypatch, capsys):
+    # Once always the design's `library` line ("d.toml, field 'library'"), even for a
+    # folder that --library or PINLIB_LIBRARY named, and the design named none.
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    good = write(tmp_path, ONE_BUS.replace("PART", "t-target"))
+    assert main(["check", str(good), "--library", "/etc"]) == 2
+    err = capsys.readouterr().err
+    assert "field '--library': a library folder may not be a system folder" in err
+    assert "--library names it" in err and f"{good}, field 'library'" not in err
+    monkeypatch.setenv("PINLIB_LIBRARY", "/usr")
+    assert main(["check", str(good)]) == 2
+    err = capsys.readouterr().err
+    assert "field 'PINLIB_LIBRARY': a library folder may not be a system folder" in err
+    monkeypatch.delenv("PINLIB_LIBRARY")
+    own = tmp_path / "own.toml"
+    own.write_text(HEAD.replace('"]\n', '", "/etc"]\n', 1) + ONE_BUS.replace("PART", "t-target"),
+                   encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(own, library_folders=[tmp_path])
+    assert (info.value.line, info.value.field) == (3, "library")
 
 
 def test_a_swap_keeping_the_other_buses_builds_the_same_design():
