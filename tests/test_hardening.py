@@ -647,6 +647,28 @@ def test_a_failing_swap_write_leaves_the_design_as_it_was(tmp_path, monkeypatch,
         "design.toml"]
 
 
+def test_a_report_never_replaces_its_design_or_snapshot(tmp_path, monkeypatch, capsys):
+    # `pinlib report board.toml --md board.toml` (the two names slipped) once replaced the
+    # design with the report, and --html onto board.result.json the saved snapshot.
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    design = tmp_path / "design.toml"
+    design.write_text(SMALL_I2C, encoding="utf-8")
+    assert main(["check", str(design), "--save"]) in (0, 1)
+    snapshot = tmp_path / "design.result.json"
+    kept = snapshot.read_bytes()
+    (tmp_path / "link.md").symlink_to(design)
+    for flag, target in (("--md", design), ("--html", snapshot),
+                         ("--md", tmp_path / "link.md")):
+        capsys.readouterr()
+        assert main(["report", str(design), flag, str(target)]) == 2
+        err = capsys.readouterr().err
+        assert "would replace the design it reports on, or its snapshot" in err, err
+        assert str(target) in err and "Traceback" not in err
+    assert design.read_text(encoding="utf-8") == SMALL_I2C and snapshot.read_bytes() == kept
+    assert sorted(p.name for p in tmp_path.iterdir()) == [
+        "design.result.json", "design.toml", "link.md"]
+
+
 def test_a_failing_snapshot_save_is_a_clear_error(tmp_path, monkeypatch, capsys):
     monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
     path = tmp_path / "design.toml"

@@ -2989,6 +2989,12 @@ def _(env):
     return env.cli("report", str(path), "--html", str(env.tmp))
 
 
+@case("REPORT_TARGET_IS_INPUT")
+def _(env):
+    path = env.write("design.toml", HEAD + I2C_BUS)
+    return env.cli("report", str(path), "--md", str(path))
+
+
 @case("REPORT_FOLDER_MISSING")
 def _(env):
     path = env.write("design.toml", HEAD + I2C_BUS)

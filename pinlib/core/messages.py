@@ -526,6 +526,7 @@ SEED_WITHOUT_MONTE_CARLO = "a seed without a Monte Carlo run"
 MONTE_CARLO_UNAVAILABLE = "the Monte Carlo engine is not available in this pinlib"
 REPORT_TARGET_IS_FOLDER = "the report target is a folder"
 REPORT_FOLDER_MISSING = "the report's folder does not exist"
+REPORT_TARGET_IS_INPUT = "the report would replace the design it reports on, or its snapshot"
 
 # ---------------------------------------------------------------- pinlib/core/extras.py, demo
 NEEDS_EXTRA = "{feature}: the '{extra}' extra of pinlib is not installed ({module} is missing)"
