@@ -924,3 +924,31 @@ def test_the_report_says_a_rename_once(tmp_path, capsys):
     html = out.read_text(encoding="utf-8")
     assert "bus sensors renamed to sensors-bus; no other change." in html
     assert "(absent)" not in html
+
+
+@pytest.mark.parametrize(("place", "value"), [
+    (("buses", 0, "id"), 7), (("buses", 1, "id"), None), (("buses", 0, "id"), "<missing>"),
+    (("buses", 0, "segments", 0, "id"), 1.5), (("buses", 2, "lines", 0, "signal"), True),
+    (("couplings",), "x"), (("couplings", 0), 1), (("couplings", 0, "id"), 3),
+    (("couplings", 0, "id"), "<missing>"), (("couplings", 0, "checks"), [1]),
+])
+def test_ids_and_couplings_of_another_kind_are_a_damaged_snapshot(tmp_path, place, value):
+    # Once a TypeError or AttributeError (a bus id of 7 joined into a path, a coupling
+    # read as an object); the random walk above met neither.
+    from pinlib.studies.snapshotcheck import check_snapshot
+
+    good = _demo_snapshot(tmp_path, "demo.toml")
+    assert good["couplings"] and good["buses"][2]["lines"]  # the demo has what is damaged
+    damaged = json.loads(json.dumps(good))
+    target = damaged
+    for step in place[:-1]:
+        target = target[step]
+    if value == "<missing>":
+        del target[place[-1]]
+    else:
+        target[place[-1]] = value
+    path = tmp_path / "demo.result.json"
+    with pytest.raises(InputError) as info:
+        check_snapshot(damaged, path)
+    assert info.value.file == str(path) and info.value.field.startswith(place[0])
+    assert "damaged" in info.value.message

@@ -404,3 +404,16 @@ def test_a_driver_two_translators_away_holds_the_victim(tmp_path):
     assert "U1 via Q2, Q1" in " ".join(c.notes)
     for k, wave in c.workings.waves.items():
         assert wave[0] == pytest.approx(vic.held_level(k[0]), rel=1e-9)
+
+
+def test_a_bus_id_with_a_dot_can_be_named_in_a_coupling(tmp_path):
+    # Once "no bus with this id (got 'i2c'); did you mean 'i2c.main'?" for the victim
+    # "i2c.main.scl": the line was split at its first dot, not at the signal's.
+    path = _variant(tmp_path, 'id = "b"', 'id = "i2c.main"')
+    text = path.read_text(encoding="utf-8").replace('victim = "b.scl"',
+                                                    'victim = "i2c.main.scl"')
+    path.write_text(text, encoding="utf-8")
+    design = load_design(path)
+    (pair,) = design.couplings
+    assert (pair.victim_bus, pair.victim_signal) == ("i2c.main", "scl")
+    assert check_design(design).couplings

@@ -3,6 +3,7 @@ file, line and field, and ``pinlib check`` turns them into exit 2 with that mess
 
 from __future__ import annotations
 
+import os
 from pathlib import Path
 
 import pytest
@@ -108,6 +109,13 @@ BAD = {
     "bus-trace-with-segments": (SEGMENTS.replace('protocol = "i2c"\n', 'protocol = "i2c"\ntrace = '
                                                  '{ length = "5 cm", capacitance = "1 pF/cm" }\n'),
                                 "bus[0].trace", 8, ["trace goes in the segments"]),
+    # An empty id was taken: the check printed "PASS  (I2C)", and no coupling could name
+    # the bus ("BUS.SIGNAL" with an empty BUS is refused as no line).
+    "empty-bus-id": (ONE_BUS.replace('id = "b"', 'id = ""').replace("PART", "t-target"),
+                     "bus[0].id", 6, ["text shorter than 1 character", "(got '')"]),
+    "empty-segment-id": (SEGMENTS.replace('[[bus.segment]]\nsupply = "1.8 V"',
+                                          '[[bus.segment]]\nid = ""\nsupply = "1.8 V"'),
+                         "bus[0].segment[1].id", 17, ["text shorter than 1 character"]),
 }
 
 
@@ -141,6 +149,15 @@ def test_bad_design_exits_2_with_the_message(tmp_path, name, capsys):
     assert err.startswith("pinlib: error: ")
     assert f"{path}:{line}" in err and f"field '{field}'" in err
     assert "Traceback" not in err
+
+
+def test_an_empty_title_is_refused(tmp_path, capsys):
+    # Once taken: the closing line read "PASS : 0 pass, ..." for a board with no name.
+    path = tmp_path / "bad.toml"
+    path.write_text(HEAD.replace('title = "bad design"', 'title = ""'), encoding="utf-8")
+    assert main(["check", str(path)]) == 2
+    err = capsys.readouterr().err
+    assert f"{path}:2, field 'title': text shorter than 1 character" in err
 
 
 def test_missing_file_exits_2(tmp_path, capsys):
@@ -296,6 +313,29 @@ def test_missing_library_folder_blames_its_source(tmp_path, monkeypatch, capsys)
     with pytest.raises(DesignError) as info:
         load_design(own)
     assert (info.value.line, info.value.field) == (3, "library[0]")
+
+
+@pytest.mark.skipif(os.name != "posix", reason="POSIX system folders")
+def test_a_system_folder_as_library_blames_its_source(tmp_path, monkeypatch, capsys):
+    # Once always the design's `library` line ("d.toml, field 'library'"), even for a
+    # folder that --library or PINLIB_LIBRARY named, and the design named none.
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    good = write(tmp_path, ONE_BUS.replace("PART", "t-target"))
+    assert main(["check", str(good), "--library", "/etc"]) == 2
+    err = capsys.readouterr().err
+    assert "field '--library': a library folder may not be a system folder" in err
+    assert "--library names it" in err and f"{good}, field 'library'" not in err
+    monkeypatch.setenv("PINLIB_LIBRARY", "/usr")
+    assert main(["check", str(good)]) == 2
+    err = capsys.readouterr().err
+    assert "field 'PINLIB_LIBRARY': a library folder may not be a system folder" in err
+    monkeypatch.delenv("PINLIB_LIBRARY")
+    own = tmp_path / "own.toml"
+    own.write_text(HEAD.replace('"]\n', '", "/etc"]\n', 1) + ONE_BUS.replace("PART", "t-target"),
+                   encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(own, library_folders=[tmp_path])
+    assert (info.value.line, info.value.field) == (3, "library")
 
 
 def test_a_swap_keeping_the_other_buses_builds_the_same_design():

@@ -23,6 +23,7 @@ import errno
 import os
 import random
 import signal
+import stat
 import subprocess
 import sys
 import tempfile
@@ -646,6 +647,28 @@ def test_a_failing_swap_write_leaves_the_design_as_it_was(tmp_path, monkeypatch,
         "design.toml"]
 
 
+def test_a_report_never_replaces_its_design_or_snapshot(tmp_path, monkeypatch, capsys):
+    # `pinlib report board.toml --md board.toml` (the two names slipped) once replaced the
+    # design with the report, and --html onto board.result.json the saved snapshot.
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    design = tmp_path / "design.toml"
+    design.write_text(SMALL_I2C, encoding="utf-8")
+    assert main(["check", str(design), "--save"]) in (0, 1)
+    snapshot = tmp_path / "design.result.json"
+    kept = snapshot.read_bytes()
+    (tmp_path / "link.md").symlink_to(design)
+    for flag, target in (("--md", design), ("--html", snapshot),
+                         ("--md", tmp_path / "link.md")):
+        capsys.readouterr()
+        assert main(["report", str(design), flag, str(target)]) == 2
+        err = capsys.readouterr().err
+        assert "would replace the design it reports on, or its snapshot" in err, err
+        assert str(target) in err and "Traceback" not in err
+    assert design.read_text(encoding="utf-8") == SMALL_I2C and snapshot.read_bytes() == kept
+    assert sorted(p.name for p in tmp_path.iterdir()) == [
+        "design.result.json", "design.toml", "link.md"]
+
+
 def test_a_failing_snapshot_save_is_a_clear_error(tmp_path, monkeypatch, capsys):
     monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
     path = tmp_path / "design.toml"
@@ -672,6 +695,53 @@ def test_atomic_write_keeps_the_old_text_when_interrupted_by_any_exception(tmp_p
     monkeypatch.undo()
     assert path.read_text(encoding="utf-8") == "a = 1\n"
     assert [p.name for p in tmp_path.iterdir()] == ["x.toml"]
+
+
+@pytest.mark.skipif(not hasattr(os, "mkfifo"), reason="named pipes are POSIX")
+def test_a_target_that_is_no_regular_file_is_refused_and_left_as_it_was(tmp_path, monkeypatch,
+                                                                         capsys):
+    # `pinlib report --html /dev/full` once replaced the device node with a regular file
+    # (the rename of the temporary file); a named pipe stands in for the device here.
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    pipe = tmp_path / "out.md"
+    os.mkfifo(pipe)
+    link = tmp_path / "link.json"
+    link.symlink_to(pipe)
+    with pytest.raises(WriteError) as info:
+        atomic_write(pipe, "a = 1\n")
+    assert info.value.file == str(pipe)
+    design = tmp_path / "design.toml"
+    design.write_text(SMALL_I2C, encoding="utf-8")
+    for argv in (["schema", "design", "--output", str(link)],
+                 ["report", str(design), "--md", str(pipe)]):
+        code = main(argv)
+        err = capsys.readouterr().err
+        assert code == 2 and "not a regular file" in err and str(pipe) in err, argv
+        assert "Traceback" not in err
+    assert stat.S_ISFIFO(pipe.stat().st_mode) and link.is_symlink()
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["design.toml", "link.json", "out.md"]
+
+
+def test_a_file_saved_with_crlf_keeps_its_line_endings_when_written(tmp_path, team,
+                                                                    capsys):
+    # The readers take CRLF (a file saved on Windows), but `swap --write` and `parts
+    # record` once wrote every line back with LF: a diff of the whole file for one value.
+    design = tmp_path / "design.toml"
+    design.write_bytes(SMALL_I2C.replace("\n", "\r\n").encode("utf-8"))
+    assert main(["swap", str(design), "U2=rtc-i2c", "--write"]) in (0, 1)
+    capsys.readouterr()
+    raw = design.read_bytes()
+    assert b'part = "rtc-i2c"' in raw and raw.count(b"\n") == raw.count(b"\r\n")
+    part = team / "mine.toml"
+    part.write_bytes(part.read_bytes().replace(b"\n", b"\r\n"))
+    record_value(load_library([team]), "mine", "sda.c_in", "6 pF", "rev C, table 5")
+    raw = part.read_bytes()
+    assert b'"6 pF"' in raw and raw.count(b"\n") == raw.count(b"\r\n")
+    # derived from the value recorded above
+    assert load_library([team]).parts["mine"].pins["sda"].c_in.value == 6e-12
+    fresh = tmp_path / "new.toml"
+    atomic_write(fresh, "a = 1\nb = 2\n")  # a new file: LF, as written
+    assert fresh.read_bytes() == b"a = 1\nb = 2\n"
 
 
 # A writer that works through several files: it creates new parts and records values into

@@ -127,7 +127,8 @@ def test_scaling_letters(text, value):
     assert ibis.parse_number(text) == pytest.approx(value, rel=1e-12)
 
 
-@pytest.mark.parametrize("text", ["", "V", "1..2", "1/2", "--1", "NA", "1 2"])
+@pytest.mark.parametrize("text", ["", "V", "1..2", "1/2", "--1", "NA", "1 2",
+                                  "1e999", "-1e400", "1e308k"])  # the last three overflow
 def test_not_numbers(text):
     with pytest.raises(ValueError):
         ibis.parse_number(text)
@@ -243,6 +244,22 @@ MALFORMED = [
      "[Ramp]", "[Ramp]"),
     ("bad comment character", lambda t: "[Comment Char] x_char\n" + t, "[Comment Char]", None),
     ("data before a keyword", lambda t: "hello\n" + t, "", None),
+    # a number that overflows to infinity was written into the part file, whose loader
+    # then named the new part file instead of the IBIS file
+    ("a number too large", lambda t: t.replace("C_pkg  0.5p", "C_pkg  1e999"), "[Package]",
+     "C_pkg  1e999"),
+    # waveform rows out of order, or a fixture of no resistance, reached the driver fit,
+    # which refused them with no file or line (field 'waves')
+    ("waveform rows out of order", lambda t: t.replace("2n    2.2   2.0   2.4",
+                                                       "0.5n  2.2   2.0   2.4"),
+     "[Rising Waveform]", "0.5n  2.2"),
+    ("waveform rows at one time", lambda t: t.replace("2n    2.2   2.0   2.4",
+                                                      "1n    2.2   2.0   2.4"),
+     "[Rising Waveform]", "1n    2.2"),
+    ("R_fixture of 0", lambda t: t.replace("R_fixture = 50", "R_fixture = 0", 1),
+     "[Rising Waveform]", "R_fixture = 0"),
+    ("negative C_fixture", lambda t: t.replace("C_fixture = 5p", "C_fixture = -5p"),
+     "[Rising Waveform]", "C_fixture = -5p"),
 ]
 
 

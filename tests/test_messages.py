@@ -160,6 +160,14 @@ def _(env):
     return err.message
 
 
+@case("BYTE_ORDER_MARK")
+def _(env):
+    (env.tmp / "bom.toml").write_bytes(b"\xef\xbb\xbfformat = \"pinlib.design/1\"\n")
+    err = _fails(lambda e: load_design(e.tmp / "bom.toml"), env)
+    assert err.line == 1 and "without a byte-order mark" in err.message
+    return err
+
+
 @case("NOT_A_REGULAR_FILE")
 def _(env):
     os.mkfifo(env.tmp / "pipe.toml")  # read, it would wait for a writer forever
@@ -229,6 +237,12 @@ def _(env):
 
     env.monkeypatch.setattr(os, "replace", refuse)
     return _fails(lambda e: atomic_write(e.tmp / "x.toml", "x = 1\n"), env)
+
+
+@case("NOT_A_REGULAR_TARGET")
+def _(env):
+    (env.tmp / "folder.toml").mkdir()
+    return _fails(lambda e: atomic_write(e.tmp / "folder.toml", "x = 1\n"), env)
 
 
 # ---------------------------------------------------------------- quantity
@@ -2975,6 +2989,12 @@ def _(env):
     return env.cli("report", str(path), "--html", str(env.tmp))
 
 
+@case("REPORT_TARGET_IS_INPUT")
+def _(env):
+    path = env.write("design.toml", HEAD + I2C_BUS)
+    return env.cli("report", str(path), "--md", str(path))
+
+
 @case("REPORT_FOLDER_MISSING")
 def _(env):
     path = env.write("design.toml", HEAD + I2C_BUS)
@@ -3132,6 +3152,21 @@ def _ibis(breaks):
 @case("IBIS_NOT_A_NUMBER")
 def _(env):
     return _ibis_fails(env, _ibis(lambda t: t.replace("Rref = 50", "Rref = fifty")))
+
+
+@case("IBIS_NUMBER_TOO_LARGE")
+def _(env):
+    return _ibis_fails(env, _ibis(lambda t: t.replace("Rref = 50", "Rref = 1e999")))
+
+
+@case("IBIS_FIXTURE_OUT_OF_RANGE", M.IBIS_FIXTURE_OUT_OF_RANGE.format(name="R_fixture"))
+def _(env):
+    return _ibis_fails(env, _ibis(lambda t: t.replace("R_fixture = 50", "R_fixture = -50")))
+
+
+@case("IBIS_TIME_NOT_INCREASING")
+def _(env):
+    return _ibis_fails(env, _ibis(lambda t: t.replace("2n    2.2", "1n    2.2")))
 
 
 @case("IBIS_NA_NOT_ALLOWED")

@@ -167,6 +167,20 @@ def test_nan_and_inf_are_refused(value):
         parse(value, "F", field="c_in")
 
 
+@pytest.mark.parametrize("value", [float("nan"), float("inf"), float("-inf")])
+def test_a_bare_nan_or_inf_is_not_advised_to_be_written_with_a_unit(value):
+    # TOML's bare nan and inf were answered "a bare number has no unit ... e.g. "nan pF"",
+    # advice that the parser itself then refuses.
+    from pinlib.core.quantity import parse_threshold
+
+    for call in (lambda: parse(value, "F", field="c_in"),
+                 lambda: parse_threshold(value, field="v_il")):
+        with pytest.raises(UnitError) as info:
+            call()
+        assert "not a finite" in info.value.problem and "nan " not in info.value.message
+        assert "inf " not in (info.value.hint or "")
+
+
 @pytest.mark.parametrize("text", ["", "   ", "pF", "10", "10 p F x", "ten pF", "10 mF/cm/cm",
                                   "10 kmF", "33R", "10 m%", "1..2 V", "1,5 V", "3.3 v v"])
 def test_malformed_text(text):

@@ -210,3 +210,18 @@ def test_stale_temporaries_of_stopped_writers_are_removed_by_the_next_write(tmp_
         os.utime(f, (old, old))
     tomlfile.atomic_write(tmp_path / "design.toml", "x = 1\n")
     assert not stale.exists() and fresh.exists() and foreign.exists()
+
+
+def test_a_byte_order_mark_is_named_as_such(tmp_path, capsys, monkeypatch):
+    # Once "not valid TOML: Invalid statement (at line 1, column 1)", which shows nothing
+    # wrong in an editor that hides the mark (a design saved by Notepad, say).
+    from pinlib.cli import main
+
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    design = tmp_path / "board.toml"
+    design.write_bytes(b"\xef\xbb\xbfformat = \"pinlib.design/1\"\r\ntitle = \"t\"\r\n")
+    assert main(["check", str(design)]) == 2
+    err = capsys.readouterr().err
+    assert f"{design}:1: the file starts with a byte-order mark (BOM)" in err
+    assert "save the file as UTF-8 without a byte-order mark" in err
+    assert "Traceback" not in err

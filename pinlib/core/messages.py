@@ -45,6 +45,7 @@ NO_SUCH_REFERENCE = "no device with this reference"
 FILE_NOT_FOUND = "file not found"
 NOT_UTF8 = "not UTF-8 text"
 NOT_UTF8_WHERE = "byte {byte} at column {column} is not UTF-8; save the file as UTF-8"
+BYTE_ORDER_MARK = "the file starts with a byte-order mark (BOM), which TOML does not take"
 NOT_A_REGULAR_FILE = "not a regular file (a device, a pipe or a socket is not read)"
 FILE_TOO_LARGE = "the file holds {size:,} bytes, more than the {limit:,} read"
 NESTED_TOO_DEEP = "arrays or tables nested deeper than {limit} levels"
@@ -54,6 +55,8 @@ CANNOT_LOCK = "cannot lock the file: {reason}"
 LOCK_IS_A_LINK = "its lock file {lock} is a symbolic link, which pinlib does not follow"
 CANNOT_WRITE_IN_FOLDER = "cannot write in this folder: {reason}"
 CANNOT_WRITE_FILE = "cannot write the file: {reason}"
+NOT_A_REGULAR_TARGET = ("not a regular file (a folder, a device, a pipe or a socket is "
+                        "never written over)")
 
 # ---------------------------------------------------------------- pinlib/core/quantity.py
 YES_NO_AS_QUANTITY = "a yes/no value where a quantity belongs"
@@ -523,6 +526,7 @@ SEED_WITHOUT_MONTE_CARLO = "a seed without a Monte Carlo run"
 MONTE_CARLO_UNAVAILABLE = "the Monte Carlo engine is not available in this pinlib"
 REPORT_TARGET_IS_FOLDER = "the report target is a folder"
 REPORT_FOLDER_MISSING = "the report's folder does not exist"
+REPORT_TARGET_IS_INPUT = "the report would replace the design it reports on, or its snapshot"
 
 # ---------------------------------------------------------------- pinlib/core/extras.py, demo
 NEEDS_EXTRA = "{feature}: the '{extra}' extra of pinlib is not installed ({module} is missing)"
@@ -543,6 +547,9 @@ SERVER_OUTPUT_HINT = "its own messages are above"
 
 # ---------------------------------------------------------------- IBIS files (library.ibis)
 IBIS_NOT_A_NUMBER = "not a number in IBIS notation"
+IBIS_NUMBER_TOO_LARGE = "a number too large to hold (it overflows to infinity)"
+IBIS_FIXTURE_OUT_OF_RANGE = "{name} out of range"
+IBIS_TIME_NOT_INCREASING = "a waveform row not later than the row before"
 IBIS_NA_NOT_ALLOWED = "NA where a value is needed"
 IBIS_WRONG_COLUMNS = "{found} columns where {expected} belong"
 IBIS_MISSING_KEYWORD = "the file has no {keyword}"

@@ -170,6 +170,8 @@ def parse(text: object, unit: str, *, field: str | None = None) -> float:
         raise ValueError(f"unknown expected unit {unit!r}")
     if isinstance(text, bool):
         raise _fail(text, unit, field, M.YES_NO_AS_QUANTITY)
+    if isinstance(text, float) and not math.isfinite(text):  # TOML's nan and inf
+        raise _fail(text, unit, field, M.NOT_FINITE)  # no hint to write "nan pF"
     if isinstance(text, (int, float)):
         raise _fail(text, unit, field, M.BARE_NUMBER, hint=_bare_hint(text, unit, field))
     if not isinstance(text, str):
@@ -347,6 +349,9 @@ def parse_threshold(text: object, *, field: str | None = None) -> Threshold:
     """
     expected = "a voltage ('2.0 V') or one relative to the supply ('0.7 VDD', 'VDD - 0.4 V')"
     if not isinstance(text, str):
+        if isinstance(text, float) and not math.isfinite(text):  # TOML's nan and inf
+            raise UnitError(M.THRESHOLD_NOT_FINITE, field=field, value=text,
+                            expected=expected)
         if isinstance(text, (int, float)) and not isinstance(text, bool):
             raise UnitError(M.BARE_NUMBER, field=field, value=text,
                             expected=expected, hint=f"write \"{text} V\" or \"{text} VDD\"")

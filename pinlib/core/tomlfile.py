@@ -33,7 +33,8 @@ try:
 except ImportError:  # pragma: no cover - tomli is a dependency; the standard library's
     import tomllib
 
-__all__ = ["load", "line_index", "line_of", "dotted", "atomic_write", "file_lock"]
+__all__ = ["load", "line_index", "line_of", "dotted", "atomic_write", "refuse_irregular_target",
+           "file_lock"]
 
 _KEY = r'(?:[A-Za-z0-9_-]+|"[^"]*"|\'[^\']*\')'
 _DOTTED = rf"{_KEY}(?:\s*\.\s*{_KEY})*"
@@ -171,6 +172,9 @@ def load(path: str | os.PathLike, *, error=InputError,
         raise error(M.NOT_UTF8, file=str(p), line=line,
                     hint=M.NOT_UTF8_WHERE.format(byte=f"0x{raw[exc.start]:02x}",
                                                  column=column)) from None
+    if text.startswith("\ufeff"):  # TOML has none; the parser's "Invalid statement" hid it
+        raise error(M.BYTE_ORDER_MARK, file=str(p), line=1,
+                    hint="save the file as UTF-8 without a byte-order mark")
     if "\r" in text:  # as a file opened in text mode reads it
         text = text.replace("\r\n", "\n").replace("\r", "\n")
     try:
@@ -355,10 +359,38 @@ def _umask() -> int:
     return mask
 
 
+def refuse_irregular_target(path: str | os.PathLike) -> None:
+    """Raise a WriteError when ``path`` (or what its link leads to) exists and is not a
+    regular file: a folder, a device (``/dev/full``), a pipe or a socket.  Replaced by a
+    regular file it would be gone (a device node for every user of the machine).  A
+    command calls it before its work, so that the refusal comes at once."""
+    try:
+        mode = os.stat(path).st_mode
+    except OSError:
+        return  # a new file (or one whose trouble the write itself names)
+    if not stat.S_ISREG(mode):
+        raise WriteError(M.NOT_A_REGULAR_TARGET, file=str(path),
+                         expected="the name of a regular file, or of a new one")
+
+
+def _line_ending(path: Path) -> str:
+    """``"\r\n"`` when the file at ``path`` ends its first line so (a file saved on
+    Windows), else ``"\n"`` (also for a new file or one that cannot be read)."""
+    try:
+        with open(path, "rb") as fh:
+            head = fh.read(64 * 1024)
+    except OSError:
+        return "\n"
+    end = head.find(b"\n")
+    return "\r\n" if end > 0 and head[end - 1:end] == b"\r" else "\n"
+
+
 def atomic_write(path: str | os.PathLike, text: str) -> None:
     """Replace ``path`` with ``text`` atomically; on any failure the old file stays whole.
 
-    When ``path`` is a link, the file it leads to is replaced (the link stays).  Stale
+    When ``path`` is a link, the file it leads to is replaced (the link stays).  A path
+    that is not a regular file (a folder, a device, a pipe) is refused, never replaced.
+    A file whose lines end in CRLF keeps them (its text is read with LF).  Stale
     temporary files of stopped writers in the folder are removed first.  The text goes
     to a temporary file in the same folder, is flushed and synced, takes the old file's
     permission bits (a new file those of the umask), and then replaces the old file in
@@ -368,6 +400,9 @@ def atomic_write(path: str | os.PathLike, text: str) -> None:
 
     # Through a link: the file it leads to is replaced, and the link stays a link.
     path = Path(os.path.realpath(path)) if os.path.islink(path) else Path(path)
+    refuse_irregular_target(path)
+    if "\r" not in text and _line_ending(path) == "\r\n":
+        text = text.replace("\n", "\r\n")  # a file read with CRLF (load) keeps them
     folder = path.parent if str(path.parent) else Path(".")
     _remove_stale_temporaries(folder)
     try:

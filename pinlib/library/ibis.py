@@ -27,6 +27,7 @@ the line and the keyword.
 
 from __future__ import annotations
 
+import math
 import re
 from dataclasses import field
 from pathlib import Path
@@ -171,12 +172,16 @@ class IbisFile:
 
 # ---------------------------------------------------------------- numbers
 def parse_number(text: str) -> float:
-    """A number in IBIS notation (``2.5pF``, ``-1.2e-3``, ``33k``); ValueError otherwise."""
+    """A number in IBIS notation (``2.5pF``, ``-1.2e-3``, ``33k``); ValueError otherwise,
+    also for one too large for a float (``1e999``: infinity is no number of a model)."""
     text = text.strip()
     m = _NUMBER.fullmatch(text) if len(text) <= _TOKEN_LIMIT else None
     if m is None:
         raise ValueError(text)
-    return float(m.group(1)) * SCALE.get(m.group(2), 1.0)
+    value = float(m.group(1)) * SCALE.get(m.group(2), 1.0)
+    if not math.isfinite(value):
+        raise ValueError(text)
+    return value
 
 
 class _Where:
@@ -198,7 +203,9 @@ class _Where:
         try:
             return parse_number(text)
         except ValueError:
-            raise self.error(M.IBIS_NOT_A_NUMBER, line, keyword, text,
+            written = len(text) <= _TOKEN_LIMIT and _NUMBER.fullmatch(text.strip())
+            raise self.error(M.IBIS_NUMBER_TOO_LARGE if written else M.IBIS_NOT_A_NUMBER,
+                             line, keyword, text,
                              "a number with an optional scaling letter "
                              "(T G M k m u n p f), e.g. 2.5p or 1.2e-3") from None
 
@@ -353,18 +360,29 @@ def _ramp(sec: _Section, where: _Where) -> Ramp:
 
 
 def _waveform(sec: _Section, where: _Where) -> Waveform:
-    fixture, rows = {}, []
+    fixture, lines, rows = {}, {}, []
     for line, row in sec.rows:
         if row[:1].isalpha():
             name, rest = _pairs(row)
             fixture[name.lower()] = where.number(rest, line, sec.name)
+            lines[name.lower()] = line
         else:
             rows.append((line, row))
     for need in ("r_fixture", "v_fixture"):
         if need not in fixture:
             raise where.error(M.IBIS_MISSING_KEYWORD.format(keyword=need.capitalize()),
                               sec.line, sec.name, None, "R_fixture and V_fixture")
-    return Waveform(_WAVES[sec.keyword], fixture, _table(sec, where, rows))
+    for name, least in (("r_fixture", "above 0"), ("c_fixture", "0 or more")):
+        value = fixture.get(name)
+        if value is not None and not (value > 0 if name == "r_fixture" else value >= 0):
+            raise where.error(M.IBIS_FIXTURE_OUT_OF_RANGE.format(name=name.capitalize()),
+                              lines[name], sec.name, value, f"{name.capitalize()} {least}")
+    table = _table(sec, where, rows)
+    for (line, row), before, after in zip(rows[1:], table.x[:-1], table.x[1:], strict=True):
+        if not after > before:
+            raise where.error(M.IBIS_TIME_NOT_INCREASING, line, sec.name, row.strip(),
+                              "the rows in order of time, each later than the one before")
+    return Waveform(_WAVES[sec.keyword], fixture, table)
 
 
 def _model_params(model: Model, sec: _Section, where: _Where) -> None:

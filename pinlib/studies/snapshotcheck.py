@@ -2,9 +2,9 @@
 
 A snapshot (``<design>.result.json``) is a file anyone can edit, damage or replace.
 :func:`check_snapshot` walks the parts of it that :func:`pinlib.studies.compare.compare`
-reads -- the buses, their segments and lines, each group's checks and figures, the
-parts and their values, the library -- and raises an :class:`InputError` naming the
-file and the first field that is not of the kind pinlib writes there (``buses[0]``: an
+reads -- the buses, their segments and lines, the couplings, each group's checks and
+figures, the parts and their values, the library -- and raises an :class:`InputError`
+naming the file and the first field that is not of the kind pinlib writes there (``buses[0]``: an
 object; ``parts``: an object of objects; a value: a finite number, text, yes/no or
 null).  What it does not read is not looked at.  The walk is a loop over a fixed shape,
 so a deep or huge snapshot costs time linear in its size and no recursion.
@@ -57,6 +57,11 @@ class _Check:
         if key in obj and not test(obj[key]):
             self.fail(f"{where}.{key}" if where else key, obj[key], expected)
 
+    def required(self, obj: dict, key: str, where: str, test, expected: str):
+        if key not in obj:
+            self.fail(f"{where}.{key}" if where else key, None, expected)
+        self.kind(obj, key, where, test, expected)
+
     def items(self, obj: dict, key: str, where: str, *, none: bool = False) -> list:
         """(place, item) of the list at ``obj[key]`` (none when absent, or null where
         ``none``), each item an object."""
@@ -89,14 +94,18 @@ def check_snapshot(data, path) -> None:
     for key in ("status", "created", "design"):
         c.kind(data, key, "", _is_scalar, _SCALAR)
     for where, bus in c.items(data, "buses", ""):
-        c.kind(bus, "id", where, _is_scalar, _SCALAR)
+        # ids are text: the change list joins them into paths (bus/segment)
+        c.required(bus, "id", where, _is_text, _TEXT)
         groups = [(where, bus)]
         for key, name in (("segments", "id"), ("lines", "signal")):
             for sub_where, sub in c.items(bus, key, where, none=True):
-                c.kind(sub, name, sub_where, _is_scalar, _SCALAR)
+                c.kind(sub, name, sub_where, _is_text, _TEXT)
                 groups.append((sub_where, sub))
         for gwhere, grp in groups:
             _check_group(c, grp, gwhere)
+    for where, pair in c.items(data, "couplings", "", none=True):
+        c.required(pair, "id", where, _is_text, _TEXT)  # victim<-aggressor
+        _check_group(c, pair, where)
     _check_parts(c, data)
     library = c.mapping(data, "library", "")
     c.kind(library, "folders", "library",

@@ -9,6 +9,7 @@ written atomically: a reader sees the old report or the new one, never half of o
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 from pathlib import Path
 
@@ -145,9 +146,25 @@ def _remove_stale_charts(folder: Path, keep: set) -> int:
     return removed
 
 
+def _refuse_own_inputs(target: Path, design: Path) -> None:
+    """Refuse a report written over its own design or the design's snapshot (a slip of
+    the two names: ``pinlib report board.toml --md board.toml`` replaced the design)."""
+    from pinlib.core.errors import InputError
+    from pinlib.studies.snapshotfile import snapshot_path
+
+    for own in (design, snapshot_path(design)):
+        try:
+            same = os.path.samefile(target, own)
+        except OSError:  # either does not exist (yet): not the same file
+            continue
+        if same:
+            raise InputError(M.REPORT_TARGET_IS_INPUT, file=str(target),
+                             expected="a file name of the report's own, e.g. review.html")
+
+
 def run(args) -> int:
     from pinlib.core.errors import InputError
-    from pinlib.core.tomlfile import atomic_write
+    from pinlib.core.tomlfile import atomic_write, refuse_irregular_target
     from pinlib.engines.dispatch import check_design
     from pinlib.model.design import load_design
     from pinlib.present.review import build_review
@@ -164,6 +181,8 @@ def run(args) -> int:
     if not target.parent.is_dir() and str(target.parent):
         raise InputError(M.REPORT_FOLDER_MISSING, file=str(target),
                          hint=f"create {target.parent} first")
+    refuse_irregular_target(target)  # /dev/full: refused now, not after the work
+    _refuse_own_inputs(target, Path(args.design))
     design = load_design(args.design, library_folders=args.library)
     result = check_design(design)
     threshold = DEFAULT_THRESHOLD if args.threshold is None else args.threshold

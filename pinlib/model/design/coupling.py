@@ -99,7 +99,7 @@ def _closest_hint(word: str, names) -> str | None:
 
 
 def _split(text: str, loc, err) -> tuple[str, str]:
-    bus, dot, signal = text.partition(".")
+    bus, dot, signal = text.rpartition(".")  # a bus id may hold a dot, a signal not
     if not dot or not bus or not signal:
         raise err(M.COUPLING_NAMES_A_LINE, loc, value=text, expected='"BUS.SIGNAL", e.g. '
                   '"i2c0.scl"')

@@ -8,7 +8,7 @@ from pathlib import Path
 
 from pinlib.core import messages as M
 from pinlib.core import protocols
-from pinlib.core.errors import DesignError, LibraryError
+from pinlib.core.errors import DesignError, InputError, LibraryError
 from pinlib.core.records import RecordError
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_index, line_of, load
@@ -16,7 +16,7 @@ from pinlib.core.worklimits import (
     MAX_DEVICES_OPEN_DRAIN,
     MAX_DEVICES_PUSH_PULL,
 )
-from pinlib.library.folders import require_folders
+from pinlib.library.folders import ENV, OPTION, require_folders
 from pinlib.library.loader import Library, load_library, record_errors
 from pinlib.model.design.build import Design, _build
 from pinlib.model.design.raw import FORMAT, RawDesign
@@ -84,8 +84,12 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
             if exc.field != "library":
                 raise
             # a refused folder (a system folder, a walk past its bounds): where it is named
-            raise DesignError(exc.problem, field="library", value=exc.file,
-                              hint=exc.hint, **at(("library",))) from None
+            if any(str(folder) == exc.file for folder in own):
+                raise DesignError(exc.problem, field="library", value=exc.file,
+                                  hint=exc.hint, **at(("library",))) from None
+            source = OPTION if exc.file in {str(Path(p)) for p in library_folders} else ENV
+            raise InputError(exc.problem, field=source, value=exc.file,
+                             hint=M.FOLDER_NAMED_BY.format(source=source)) from None
     return _build(raw, path, library, text, swaps or {}, index)
 
 

@@ -179,8 +179,13 @@ class RawDevice(Record):
     capacitance_tolerance: Ratio | None = None
 
 
+#: An id or title the user names things by: never empty ("" could not be named in a
+#: coupling's BUS.SIGNAL nor shown in a report).
+Name = Annotated[str, Rule(min_length=1)]
+
+
 class RawSegment(Record):
-    id: str | None = None
+    id: Name | None = None
     supply: Supply | None = None
     supply_tolerance: Tolerance | None = None
     pullup: PullupSetting | None = None
@@ -195,7 +200,7 @@ class RawSegment(Record):
 
 
 class RawBus(RawSegment):
-    id: str
+    id: Name
     protocol: Literal[PROTOCOLS]  # type: ignore[valid-type]
     title: str | None = None
     mode: str | None = None
@@ -242,7 +247,7 @@ class RawCoupling(Record):
 
 class RawDesign(Record):
     format: Literal["pinlib.design/1"]
-    title: str
+    title: Name
     description: str | None = None
     library: tuple[str, ...] = ()
     warn_margin: Ratio = 0.10

@@ -108,8 +108,8 @@ def find_renames(old: dict, new: dict) -> tuple[dict, dict]:
 
 def _signal_renamed(name: str, buses: dict) -> str:
     """``sensors.scl`` -> ``sensors-bus.scl`` (a coupling's victim or aggressor)."""
-    bus, dot, signal = str(name).partition(".")
-    return f"{buses.get(bus, bus)}{dot}{signal}"
+    bus, dot, signal = str(name).rpartition(".")  # as the design's coupling reads it
+    return f"{buses.get(bus, bus)}{dot}{signal}" if dot else signal
 
 
 def renamed_snapshot(old: dict, buses: dict, refs: dict) -> dict:
