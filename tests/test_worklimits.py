@@ -212,3 +212,36 @@ def test_ctrl_c_stops_a_long_run_cleanly():
     out, err = proc.communicate(timeout=60)
     assert proc.returncode == 130, err
     assert "Traceback" not in err and "interrupted" in err
+
+
+def test_an_interrupt_a_library_turns_into_another_error_still_ends_cleanly(monkeypatch,
+                                                                            capsys):
+    # numpy's np.unique(..., axis=0) reported Ctrl-C landing in its comparison as a
+    # TypeError ("Cannot compare structured arrays..."): the command ended with a
+    # traceback and exit 1, not the one line and 130 of any other interrupt
+    import os
+    import signal
+
+    import pinlib.cli as cli
+
+    def run(argv):
+        try:
+            os.kill(os.getpid(), signal.SIGINT)
+            for _ in range(1000):  # the handler runs between bytecodes
+                pass
+        except KeyboardInterrupt:
+            raise TypeError("Cannot compare structured arrays") from None
+        return 0
+
+    monkeypatch.setattr(cli, "_main", run)
+    assert cli.main([]) == 130
+    err = capsys.readouterr().err
+    assert err.strip().splitlines() == [err.strip()] and "interrupted" in err.lower()
+    assert signal.getsignal(signal.SIGINT) is signal.default_int_handler  # put back
+
+    def broken(argv):
+        raise TypeError("a real bug")  # without Ctrl-C an error is still an error
+
+    monkeypatch.setattr(cli, "_main", broken)
+    with pytest.raises(TypeError):
+        cli.main([])

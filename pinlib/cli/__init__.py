@@ -139,11 +139,48 @@ def entry() -> int:
 
 def main(argv: list[str] | None = None) -> int:
     """Run one command; Ctrl-C at any point (imports, argument parsing, long work) ends it
-    with one line on standard error and exit code 130 (128 + SIGINT), never a traceback."""
+    with one line on standard error and exit code 130 (128 + SIGINT), never a traceback.
+    That holds too where a library turns the interrupt into another error (numpy's
+    ``np.unique(..., axis=0)`` reports a TypeError when it lands in its comparison): an
+    error after Ctrl-C is the interrupt's."""
+    watch = _InterruptWatch()
     try:
         return _main(argv)
     except KeyboardInterrupt:
         return _interrupted()
+    except Exception:
+        if watch.seen:
+            return _interrupted()
+        raise
+    finally:
+        watch.close()
+
+
+class _InterruptWatch:
+    """Notes that SIGINT arrived, then raises KeyboardInterrupt as Python's own handler
+    does; only where that handler is in place (the main thread of a process that has
+    not set its own), and put back by :meth:`close`."""
+
+    def __init__(self) -> None:
+        import signal
+
+        self.seen = False
+        self._signal = signal
+        self._installed = False
+        if signal.getsignal(signal.SIGINT) is signal.default_int_handler:
+            try:
+                signal.signal(signal.SIGINT, self._note)
+                self._installed = True
+            except ValueError:  # not the main thread: leave the handler alone
+                pass
+
+    def _note(self, signum, frame):
+        self.seen = True
+        raise KeyboardInterrupt
+
+    def close(self) -> None:
+        if self._installed:
+            self._signal.signal(self._signal.SIGINT, self._signal.default_int_handler)
 
 
 def _interrupted() -> int:
