@@ -708,3 +708,18 @@ def test_parts_show_gives_inherited_values_the_class_s_basis(tmp_path, monkeypat
     assert (abs_max["basis"], abs_max["source"]) == (
         "generic", "typical of the class (common practice)")
     assert values["timing.f_max"]["source"] == "datasheet rev B"
+
+
+def test_a_missing_builtin_folder_is_named_with_the_setting_that_chose_it(
+        tmp_path, monkeypatch):
+    # PINLIB_BUILTIN naming a folder that does not exist left only "unknown part
+    # mcu-3v3" at the design's line, with nothing on the setting behind it
+    import pinlib.library.loader as loader
+
+    missing = tmp_path / "no-such-folder"
+    monkeypatch.setattr(loader, "BUILTIN_DIR", missing)
+    monkeypatch.setenv("PINLIB_BUILTIN", str(missing))
+    with pytest.raises(LibraryError) as info:
+        loader.load_library(env=False)
+    assert info.value.file == str(missing)
+    assert "PINLIB_BUILTIN" in info.value.hint

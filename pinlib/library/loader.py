@@ -417,6 +417,15 @@ def library_folders(extra: Iterable[str | os.PathLike] = (), *, env: bool = True
     return folders
 
 
+def _builtin_hint() -> str:
+    """Where the missing built-in folder was taken from, and what to do."""
+    if os.environ.get("PINLIB_BUILTIN"):
+        return "the built-in library's folder, set by PINLIB_BUILTIN: unset it or name " \
+               "a folder that exists"
+    return "the built-in library's folder: the installation lacks its parts; install " \
+           "pinlib again"
+
+
 def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = True,
                  env: bool = True, strict: bool = False, lazy: bool = False,
                  follow_links: bool = False) -> Library:
@@ -453,8 +462,9 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
     loaded: set[Path] = set()
     for folder, is_builtin in sources:
         if not folder.is_dir():
-            err = LibraryError(M.LIBRARY_FOLDER_NOT_FOUND, file=str(folder))
-            if strict:
+            err = LibraryError(M.LIBRARY_FOLDER_NOT_FOUND, file=str(folder),
+                               hint=_builtin_hint() if is_builtin else None)
+            if strict or is_builtin:  # without the built-in parts every id is unknown
                 raise err
             lib.problems.append(err)
             continue
