@@ -59,6 +59,14 @@ def test_a_new_design_fits_80_columns_with_its_notes_in_one_column(tmp_path, cap
     assert load_design(path).buses  # and it still loads
 
 
+def test_new_given_a_folder_says_it_is_one(tmp_path, capsys):
+    # "pinlib new boards/" said "the file exists", as if a design were there
+    assert main(["new", str(tmp_path), "--part", "U1=mcu-3v3", "--part", "U2=eeprom-i2c"]) == 2
+    err = capsys.readouterr().err
+    assert "not a regular file" in err and "file exists" not in err
+    assert str(tmp_path / "board.toml") in err
+
+
 def test_new_refuses_to_overwrite(tmp_path, capsys):
     path = tmp_path / "board.toml"
     path.write_text("# mine\n", encoding="utf-8")

@@ -80,6 +80,10 @@ def run(args) -> int:
     from pinlib.model.starter import Placement, starter_text
 
     placements = parse_placements(args.parts)
+    if os.path.isdir(args.design):
+        raise WriteError(M.NOT_A_REGULAR_TARGET, file=str(args.design),
+                         hint="name the design file to write in it, e.g. "
+                              f"{os.path.join(args.design, 'board.toml')}")
     if os.path.lexists(args.design):
         raise WriteError(M.NEW_FILE_EXISTS, file=str(args.design),
                          hint="choose another name, or remove the file first")
