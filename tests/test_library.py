@@ -167,6 +167,33 @@ def test_unknown_part_names_the_closest(builtin):
 
 # --- extends ----------------------------------------------------------------------------
 
+def test_a_source_without_its_value_is_not_claimed_for_the_inherited_value(builtin,
+                                                                           tmp_path):
+    # invented: mid sets c_in 8 pF "typical of the class"; leaf wrote only a source,
+    # which merged into mid's table and showed mid's 8 pF as read from "rev A"
+    team = tmp_path / "team"
+    write(team, "mid.toml", part("mid", "base", """
+        [pins.sda]
+        c_in = { value = "8 pF", basis = "typical", source = "typical of the class" }
+        """))
+    leaf = write(team, "leaf.toml", part("leaf", "mid", """
+        [pins.sda]
+        c_in = { source = "rev A" }
+        """))
+    lib = load_library([team])
+    assert "leaf" not in lib.parts
+    (err,) = [e for e in lib.problems if e.file == str(leaf)]
+    assert err.line == line_of_text(leaf, "rev A")
+    assert err.field.startswith("pins.sda.c_in")
+    # a table that gives its value with its source still replaces the inherited one
+    write(team, "leaf.toml", part("leaf", "mid", """
+        [pins.sda]
+        c_in = { value = "6 pF", basis = "datasheet", source = "rev A" }
+        """))
+    c_in = load_library([team]).parts["leaf"].pins["sda"].c_in
+    assert (c_in.value, c_in.source, c_in.origin) == (6e-12, "rev A", "leaf")
+
+
 def test_three_level_chain_and_origins(builtin, tmp_path):
     team = tmp_path / "team"
     mid = write(team, "mid.toml", part("mid", "base", """

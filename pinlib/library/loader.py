@@ -175,7 +175,13 @@ def _merge(parent: dict, child: dict, parent_origin: dict, child_id: str, top=Tr
 
 
 def _is_value_table(d: dict) -> bool:
-    return "value" in d and set(d) <= {"value", "basis", "source", "typ"}
+    """A value with its provenance (``{ value, basis, source, typ }``): it replaces what
+    it extends whole.  So does such a table that names a source or a basis without its
+    value, which merged would have claimed that source for the inherited value (it is
+    then refused for the missing value, at its own file and line)."""
+    keys = set(d)
+    return bool(keys) and keys <= {"value", "basis", "source", "typ"} and bool(
+        keys & {"value", "basis", "source"})
 
 
 def _origin_of(origin: dict, loc: tuple) -> str | None:
