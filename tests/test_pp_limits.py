@@ -277,20 +277,28 @@ def test_a_figure_without_a_number_gives_its_reason_in_the_detail(monkeypatch, c
         assert not re.search(r"(clock|margin)\s+—$", ln), ln
 
 
+def _spi_design(tmp_path, title, clock, supply, *devices, signals=("sclk",)) -> Path:
+    """A one-bus SPI design of the given devices, each line 2 cm at 1 pF/cm."""
+    design = tmp_path / "d.toml"
+    design.write_text(
+        f'format = "pinlib.design/1"\ntitle = "{title}"\n[[bus]]\nid = "spi0"\n'
+        f'protocol = "spi"\nclock = "{clock}"\nsupply = "{supply}"\ndevices = [\n'
+        + "".join(f"  {d},\n" for d in devices) + "]\n"
+        + "".join(f'lines.{s} = {{ length = "2 cm", capacitance = "1 pF/cm" }}\n'
+                  for s in signals), encoding="utf-8")
+    return design
+
+
 def test_a_bridge_with_a_device_on_another_rail_says_its_far_side_is_not_modelled(tmp_path):
     # an SPI bus is one net per signal: a 5 V converter behind an isolator on a 3.3 V
     # bus is checked against the controller's 3.3 V drive (its level checks fail), not
     # the isolator's far side, which the design cannot describe; the result must say
     # so rather than leave the failure unexplained (invented scenario)
-    design = tmp_path / "d.toml"
-    design.write_text(
-        'format = "pinlib.design/1"\ntitle = "isolated 5 V converter (invented)"\n'
-        '[[bus]]\nid = "spi0"\nprotocol = "spi"\nclock = "2 MHz"\nsupply = "3.3 V"\n'
-        'devices = [\n  { ref = "U1", part = "mcu-3v3", role = "controller" },\n'
-        '  { ref = "U5", part = "isolator-spi", side = "a" },\n'
-        '  { ref = "U2", part = "adc-spi", supply = "5 V" },\n]\n'
-        'lines.sclk = { length = "2 cm", capacitance = "1 pF/cm" }\n'
-        'lines.copi = { length = "2 cm", capacitance = "1 pF/cm" }\n', encoding="utf-8")
+    design = _spi_design(tmp_path, "isolated 5 V converter (invented)", "2 MHz", "3.3 V",
+                         '{ ref = "U1", part = "mcu-3v3", role = "controller" }',
+                         '{ ref = "U5", part = "isolator-spi", side = "a" }',
+                         '{ ref = "U2", part = "adc-spi", supply = "5 V" }',
+                         signals=("sclk", "copi"))
     bus = check_design(load_design(design)).bus("spi0")
     notes = [n for n in bus.notes if "not modelled" in n]
     assert len(notes) == 1 and "U5" in notes[0] and "U2" in notes[0] and "5 V" in notes[0]
@@ -304,13 +312,9 @@ def test_a_bridge_with_a_device_on_another_rail_says_its_far_side_is_not_modelle
 def test_a_peak_below_the_receivers_supply_reads_below_not_minus_above(tmp_path):
     # reproducer: a 1.8 V controller's clock into a 3.3 V flash read "peak 1.8 V at
     # U2.sclk against its abs_max 3.7 V at 3.3 V: -1.5 V above its supply"
-    design = tmp_path / "d.toml"
-    design.write_text(
-        'format = "pinlib.design/1"\ntitle = "1.8 V clock into a 3.3 V part (invented)"\n'
-        '[[bus]]\nid = "spi0"\nprotocol = "spi"\nclock = "1 MHz"\nsupply = "1.8 V"\n'
-        'devices = [\n  { ref = "U1", part = "mcu-1v8", role = "controller" },\n'
-        '  { ref = "U2", part = "nor-flash-spi", supply = "3.3 V" },\n]\n'
-        'lines.sclk = { length = "2 cm", capacitance = "1 pF/cm" }\n', encoding="utf-8")
+    design = _spi_design(tmp_path, "1.8 V clock into a 3.3 V part (invented)", "1 MHz",
+                         "1.8 V", '{ ref = "U1", part = "mcu-1v8", role = "controller" }',
+                         '{ ref = "U2", part = "nor-flash-spi", supply = "3.3 V" }')
     bus = check_design(load_design(design)).bus("spi0")
     chk = next(c for ln in bus.lines for c in ln.checks
                if c.id == "overshoot" and c.subject == "U2")
