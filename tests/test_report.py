@@ -285,3 +285,19 @@ def test_a_bus_line_names_the_failing_check_as_its_worst_not_a_deeper_warning():
     bus.add(Check("f-max", "pass", 1e6, 2e6, "Hz", 0.5, "datasheet", "ok", subject="U2"))
     line = bus_line(bus)
     assert "worst margin −5 % (COPI setup U2)" in line.replace("-", "−"), line
+
+
+def test_a_relation_and_a_sign_stay_with_their_number_and_the_clock_names_its_check(
+        monkeypatch, capsys):
+    # invented 1 km link: at 80 columns "margin <" ended a line and "-999 %" began the
+    # next, and the bus line read "set by cipo-setup U2" where the checks say "CIPO setup"
+    monkeypatch.setenv("COLUMNS", "80")
+    main(["check", str(ROOT / "tests" / "data" / "spi-one-km.toml")])
+    lines = capsys.readouterr().out.splitlines()
+    assert all(len(ln) <= 80 for ln in lines)
+    for ln in lines:
+        assert not ln.rstrip().endswith(("<", ">", "≤", "≥", "margin")), ln
+    text = " ".join(ln.strip() for ln in lines)
+    assert "set by CIPO setup U2" in text and "cipo-setup" not in text
+    assert wrap("so the margin < -999 % here", 20) == ["so the", "    margin < -999 %",
+                                                        "    here"]

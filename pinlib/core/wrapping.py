@@ -13,10 +13,10 @@ import textwrap
 
 __all__ = ["wrap", "NBSP"]
 
-#: A number stays on one line with its unit, its relation (≤, ≥) and the word before it
-#: ("tr 242 ns").
-_GLUE = re.compile(r"(?<=\d) (?=[^\W\d_]|%|Ω|µ|°)|(?<=[≤≥−+]) (?=\d)"
-                   r"|(?<=[^\W\d_]) (?=[+−-]?\d)")
+#: A number stays on one line with its unit, its relation (≤, ≥, <, >) and the word
+#: before it ("tr 242 ns", "margin < -999 %").
+_GLUE = re.compile(r"(?<=\d) (?=[^\W\d_]|%|Ω|µ|°)|(?<=[≤≥<>]) (?=[+−-]?\d)"
+                   r"|(?<=[−+]) (?=\d)|(?<=[^\W\d_]) (?=[+−-]?\d|[≤≥<>] [+−-]?\d)")
 #: The no-break space that holds two words together while wrapping (a space again after).
 NBSP = "\u00a0"
 

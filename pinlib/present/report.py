@@ -152,6 +152,9 @@ def _spi(bus: BusResult) -> list[str]:
                      else "max clock — (not computed; the notes in --detail say why)")
     if clock:
         by = _fig_text(bus, "max_clock_limited_by")
+        word, _, rest = (by or "").partition(" ")
+        if "-" in word:  # a timing check's id ("cipo-setup U2") under its label
+            by = f"{check_label(word)} {rest}".strip()
         parts.append(f"max clock {clock}" + (f" (set by {by})" if by else ""))
     slack = _timing_slack(bus)
     if slack:
