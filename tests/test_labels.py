@@ -92,3 +92,12 @@ def test_labels_import_no_widget_or_chart():
     run = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                          timeout=60)
     assert run.returncode == 0, run.stdout + run.stderr
+
+
+def test_a_timing_path_is_named_as_the_checks_table_names_it():
+    # one rule for the budget chart's bars and the SPI bus line's "set by"
+    from pinlib.core.labels import path_label
+
+    assert path_label("copi-setup U12") == "COPI setup U12"
+    assert path_label("cipo-hold U2") == "CIPO hold U2"
+    assert path_label("f_max U1") == "f_max U1"  # no check id: as written

@@ -23,7 +23,7 @@ from collections.abc import Callable, Mapping
 from typing import Any
 
 __all__ = ["FIGURES", "SHORT", "CHECKS", "figure_label", "short_label", "check_label",
-           "shown_figures", "humanize"]
+           "path_label", "shown_figures", "humanize"]
 
 #: Figure id -> label, in the order a table lists them (units come with the values).
 FIGURES: dict[str, str] = {
@@ -173,6 +173,16 @@ def check_label(check_id: str) -> str:
     """A check's label: ``"noise-margin-low"`` -> ``"Noise margin low"``,
     ``"f-max"`` -> ``"Clock ≤ f(max)"``."""
     return CHECKS.get(check_id) or humanize(check_id)
+
+
+def path_label(path: str) -> str:
+    """A timing path as the checks table names it: ``"copi-setup U12"`` -> ``"COPI setup
+    U12"``; a first word that is no check id (one without a hyphen, ``"f_max U1"``) is
+    left as it is."""
+    head, _, rest = path.partition(" ")
+    if "-" not in head:
+        return path
+    return f"{check_label(head)} {rest}".strip()
 
 
 def _order(name: str) -> tuple[int, int]:

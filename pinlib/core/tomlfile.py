@@ -359,7 +359,7 @@ def _umask() -> int:
     return mask
 
 
-def refuse_irregular_target(path: str | os.PathLike) -> None:
+def refuse_irregular_target(path: str | os.PathLike, hint: str | None = None) -> None:
     """Raise a WriteError when ``path`` (or what its link leads to) exists and is not a
     regular file: a folder, a device (``/dev/full``), a pipe or a socket.  Replaced by a
     regular file it would be gone (a device node for every user of the machine).  A
@@ -370,7 +370,7 @@ def refuse_irregular_target(path: str | os.PathLike) -> None:
         return  # a new file (or one whose trouble the write itself names)
     if not stat.S_ISREG(mode):
         raise WriteError(M.NOT_A_REGULAR_TARGET, file=str(path),
-                         expected="the name of a regular file, or of a new one")
+                         expected="the name of a regular file, or of a new one", hint=hint)
 
 
 def _line_ending(path: Path) -> str:

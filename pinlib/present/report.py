@@ -19,7 +19,7 @@ from __future__ import annotations
 import math
 import re
 
-from pinlib.core.labels import check_label, humanize
+from pinlib.core.labels import check_label, humanize, path_label
 from pinlib.model.result import STATUSES, BusResult, Check, DesignResult, figure_text, margin_text
 from pinlib.present.detail import detail_lines
 from pinlib.present.terminal import DEFAULT_WIDTH, status_word, wrap
@@ -152,9 +152,7 @@ def _spi(bus: BusResult) -> list[str]:
                      else "max clock — (not computed; the notes in --detail say why)")
     if clock:
         by = _fig_text(bus, "max_clock_limited_by")
-        word, _, rest = (by or "").partition(" ")
-        if "-" in word:  # a timing check's id ("cipo-setup U2") under its label
-            by = f"{check_label(word)} {rest}".strip()
+        by = by and path_label(by)  # "cipo-setup U2" as the checks name it
         parts.append(f"max clock {clock}" + (f" (set by {by})" if by else ""))
     slack = _timing_slack(bus)
     if slack:

@@ -75,15 +75,14 @@ def parse_placements(items) -> list[tuple[str, str]]:
 
 def run(args) -> int:
     from pinlib.core.errors import InputError, WriteError
-    from pinlib.core.tomlfile import atomic_write
+    from pinlib.core.tomlfile import atomic_write, refuse_irregular_target
     from pinlib.library.loader import load_library
     from pinlib.model.starter import Placement, starter_text
 
     placements = parse_placements(args.parts)
-    if os.path.isdir(args.design):
-        raise WriteError(M.NOT_A_REGULAR_TARGET, file=str(args.design),
-                         hint="name the design file to write in it, e.g. "
-                              f"{os.path.join(args.design, 'board.toml')}")
+    refuse_irregular_target(args.design, hint="name the design file to write, e.g. "
+                            f"{os.path.join(args.design, 'board.toml')}"
+                            if os.path.isdir(args.design) else None)
     if os.path.lexists(args.design):
         raise WriteError(M.NEW_FILE_EXISTS, file=str(args.design),
                          hint="choose another name, or remove the file first")

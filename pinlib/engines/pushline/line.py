@@ -406,11 +406,7 @@ def _idle_pin_notes(a: LineAnalysis, res: LineResult) -> None:
 
 def _route_net(route, stretches, anchor: str | None = None):
     """:func:`pinlib.engines.pushline.routes.route_net`, imported by the first routed
-    line (a design of point-to-point lines does without the tree solver's set-up), with
-    its far point (where the line's ``extra_capacitance`` sits) the point farthest in
-    delay from ``anchor``, the bus's controller, when it is on the line: the same
-    whichever way the route is written, and the far end of the simple form from the
-    controller.  Without one, the farthest from the route's first point."""
+    line (a design of point-to-point lines does without the tree solver's set-up)."""
     from pinlib.engines.pushline.routes import route_net
 
     return route_net(route, stretches, anchor)

@@ -3,6 +3,7 @@
 
 from __future__ import annotations
 
+import math
 from dataclasses import field
 
 import numpy as np
@@ -116,6 +117,14 @@ class Term:
     def margin(self, period):
         """Available minus required time at a clock period. [s]"""
         return self.available(period) - self.required
+
+    def never_switching(self) -> str:
+        """The signals whose flight has no time (a receiver they never cross the
+        threshold of: ``"SCLK and CIPO"``), or ``"a signal"`` where no part names one;
+        why no time is available where :meth:`available` is not finite. [1]"""
+        never = sorted({k.split("_")[0].upper() for k, v in self.parts.items()
+                        if isinstance(v, float) and not math.isfinite(v)})
+        return " and ".join(never) or "a signal"
 
 
 def _or0(x):

@@ -102,16 +102,14 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
                          f"period (rule of thumb; set by {edge_sig}); it warns, it does not "
                          "limit")
     for fig, tid in MARGIN_FIGURES:
-        if tid not in worst:
-            reason = MARGIN_NOT_COMPUTED
-        elif tid in why:
-            reason = f"none, {why[tid]}"
-        else:
-            reason = None if worst[tid] is not None else \
-                "none: a receiver never switches (see the checks)"
-        if reason is not None and (tid not in worst or tid in why):
+        # a figure without a number says why, in place of it (it read "—"); the notes
+        # repeat a reason the checks do not give
+        reason = None
+        if tid not in worst or tid in why:
+            reason = MARGIN_NOT_COMPUTED if tid not in worst else f"none, {why[tid]}"
             res.notes.append(f"{fig}: {reason}")
-        # a figure without a number says why, in place of it (it read "—")
+        elif worst[tid] is None:
+            reason = "none: a receiver never switches (see the checks)"
         res.figure(fig, worst.get(tid), "s", reason)
     return res
 
@@ -140,11 +138,9 @@ def term_check(t: Term, clock: float, warn: float, mode: int) -> Check:
     head = f"{title.format(ref=t.subject)}: "
     avail = float(t.available(1.0 / clock))
     if not math.isfinite(avail):
-        never = sorted({k.split("_")[0].upper() for k, v in t.parts.items()
-                        if isinstance(v, float) and not math.isfinite(v)})
-        what = " and ".join(never) or "a signal"
-        reason = (f"{what} never crosses the receiving input's threshold (VIH on a rise, VIL "
-                  "on a fall), so no time is available: see the line's level checks")
+        reason = (f"{t.never_switching()} never crosses the receiving input's threshold "
+                  "(VIH on a rise, VIL on a fall), so no time is available: see the line's "
+                  "level checks")
         return Check(t.id, "fail", None, t.required, "s", None, source,
                      head + reason + f"; {_fmt(t.required, 's')} required",
                      subject=t.subject, details=details, reason=reason,

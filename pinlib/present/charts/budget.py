@@ -9,7 +9,7 @@ import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
-from pinlib.core.labels import check_label
+from pinlib.core.labels import path_label
 from pinlib.core.quantity import format_si
 from pinlib.present.charts.frame import (
     _axis,
@@ -103,7 +103,7 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
             for i, (p, c, d) in enumerate(items)]
     ticks = ([{"path": p, "t": _num(v * fx), "series": available_label}
               for p, v in avail.items()] if avail else None)
-    names = [{"path": p, "name": _path_name(p)} for p in paths]
+    names = [{"path": p, "name": path_label(p)} for p in paths]
     notes = ([{"path": p, "text": _margin_text(m, worst.get(p)), "series": stat[p]}
               for p, m in marg.items()] if marg else None)
     known = _reuse(("timing_budget", x_title, tuple(paths), tuple(comps), tuple(fixed),
@@ -115,15 +115,6 @@ def timing_budget(rows, *, available=None, margins: Mapping[str, float] | None =
     layers = _layers(bars, ticks, names, notes, x_title, paths, comps, fixed,
                      fixed_colours, plot_h / n_rows, width)
     return _titled(_alt().layer(*layers), title, subtitle, width, plot_h)
-
-
-def _path_name(path: str) -> str:
-    """A path as the checks table names it: ``"copi-setup U12"`` -> ``"COPI setup U12"``
-    (a first word that is no check id, one without a hyphen, is left as it is)."""
-    head, _, rest = path.partition(" ")
-    if "-" not in head:
-        return path
-    return f"{check_label(head)} {rest}".strip()
 
 
 def _signed(m: float) -> str:

@@ -129,9 +129,7 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
     for term in analysis.terms:
         path = f"{term.id} {term.subject}"
         if not math.isfinite(float(term.available(period))):
-            never = sorted({k.split("_")[0].upper() for k, v in term.parts.items()
-                            if isinstance(v, float) and not math.isfinite(v)})
-            not_drawn[path] = NO_TIME.format(what=" and ".join(never) or "a signal")
+            not_drawn[path] = NO_TIME.format(what=term.never_switching())
             continue
         lead = term.parts.get("lead")
         lead_s = float(lead) if isinstance(lead, (int, float)) else 0.0
