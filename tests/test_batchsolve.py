@@ -154,3 +154,27 @@ def test_the_edges_into_the_pins_alone_are_the_engines_own():
         for _, r, t_ramp, c in keys:
             assert held[("pushline.edge_alone", r, t_ramp, c)] == float(
                 drv.edge_time(r, t_ramp, c))
+
+
+def test_a_group_of_like_steps_is_parted_by_record_length():
+    """Short records are not marched on to a long one's end when another call costs
+    less; every edge is in exactly one call, in order of length, each call within
+    MAX_ELEMENTS."""
+    from types import SimpleNamespace
+
+    def member(i, n):
+        g = SimpleNamespace(t=np.arange(n) * 1e-11, n_first=n, sections=[(50.0, 3e-10)])
+        return (f"edge{i}", g, 30.0, 1e-9)
+
+    # 30 records of 1,000 samples beside two of 200,000 (invented test data)
+    members = [member(i, 200_000 if i in (3, 17) else 1_000) for i in range(32)]
+    calls = batchsolve._batches(members, full=False)
+    assert sorted(m[0] for c in calls for m in c) == sorted(m[0] for m in members)
+    lengths = [[m[1].n_first for m in c] for c in calls]
+    assert lengths == [[1_000] * 30, [200_000] * 2]
+    # one call would march 32 records of 200,000 steps: more than MAX_ELEMENTS allows
+    many = [member(i, 400_000) for i in range(12)]
+    for c in batchsolve._batches(many, full=False):
+        assert len(c) == 1 or len(c) * 400_000 <= batchsolve.MAX_ELEMENTS
+    # like lengths stay in one call
+    assert len(batchsolve._batches([member(i, 1_000) for i in range(40)], full=False)) == 1

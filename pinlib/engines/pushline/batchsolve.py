@@ -109,29 +109,70 @@ def prefetch(inputs: Iterable[LineInputs]) -> int:
             members.sort(key=lambda m: -float(m[1].t[1]))  # by step, the coarsest first
             start = 0
             while start < len(members):
-                end = _batch_end(members, start, full)
-                done, rest = _solve(list(sections), members[start:end], uses, full)
-                stored += done
-                if rest:
-                    left.setdefault(sections, []).extend(rest)
+                end = _step_end(members, start)
+                for batch in _batches(members[start:end], full):
+                    done, rest = _solve(list(sections), batch, uses, full)
+                    stored += done
+                    if rest:
+                        left.setdefault(sections, []).extend(rest)
                 start = end
         groups = left
     return stored
 
 
-def _batch_end(members: list, start: int, full: bool) -> int:
-    """The end of the batch from ``start`` (steps sorted from the coarsest): steps within
-    :data:`STEP_RATIO` of the first, at most :data:`MAX_ELEMENTS` samples in all, each
-    record padded to the batch's longest."""
+def _step_end(members: list, start: int) -> int:
+    """The end of the members from ``start`` (steps sorted from the coarsest) whose
+    steps are within :data:`STEP_RATIO` of the first."""
     coarsest = float(members[start][1].t[1])
-    end, longest = start + 1, _length(members[start][1], full)
-    while end < len(members):
-        g = members[end][1]
-        longest = max(longest, _length(g, full))
-        if coarsest > STEP_RATIO * float(g.t[1]) or (end - start + 1) * longest > MAX_ELEMENTS:
-            break
+    end = start + 1
+    while end < len(members) and not coarsest > STEP_RATIO * float(members[end][1].t[1]):
         end += 1
     return end
+
+
+#: The cost model that parts a group of like steps into solver calls (measured on the
+#: candidates of the demo's display position, 2026-12-04): a call's fixed cost, a
+#: lockstep run's, and a sample's (each record is marched on to its batch's longest,
+#: so a short record beside a long one costs the long one's samples). [s]
+_CALL_COST = 1.0e-3
+_RUN_COST = 33e-6
+_SAMPLE_COST = 49e-9
+
+
+def _batches(members: list, full: bool) -> list[list]:
+    """``members`` (steps within :data:`STEP_RATIO`) in solver calls: by record length,
+    parted where the padding of the short records to the long ones would cost more
+    than another call (:data:`_CALL_COST`...), at most :data:`MAX_ELEMENTS` samples a
+    call.  Which call an edge is solved in changes none of its samples (each case is
+    marched on its own grid and runs, :mod:`pinlib.physics.waveform.rowgrids`)."""
+    members = sorted(members, key=lambda m: _length(m[1], full))
+    lengths = [_length(m[1], full) for m in members]
+    run = max(1, min(_run_steps(m[1]) for m in members))
+    # best[j]: the least cost of the first j members, parted at cut[j]
+    best, cut = [0.0], [0]
+    for j in range(1, len(members) + 1):
+        longest, choice = lengths[j - 1], None
+        for i in range(j - 1, -1, -1):
+            size = j - i
+            if size > 1 and size * longest > MAX_ELEMENTS:
+                break
+            cost = (best[i] + _CALL_COST + -(-longest // run) * _RUN_COST
+                    + size * longest * _SAMPLE_COST)
+            if choice is None or cost < choice[0]:
+                choice = (cost, i)
+        best.append(choice[0])
+        cut.append(choice[1])
+    out, j = [], len(members)
+    while j > 0:
+        out.append(members[cut[j]:j])
+        j = cut[j]
+    return out[::-1]
+
+
+def _run_steps(g) -> int:
+    """The steps of the solver's lockstep run on an edge's grid: its shortest delay."""
+    dt = float(g.t[1])
+    return int(min(td for _, td in g.sections) / dt) if g.sections else 1
 
 
 def _length(g, full: bool) -> int:
