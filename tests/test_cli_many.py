@@ -530,3 +530,22 @@ def test_a_damaged_snapshot_is_not_called_missing(tmp_path, capsys):
     assert below_a.strip() == "its snapshot could not be read: nothing to compare with"
     below_b = out[out.index(next(ln for ln in out if "b.toml" in ln)) + 1]
     assert below_b.strip().startswith("no snapshot to compare with")
+
+
+def test_new_with_a_team_library_writes_its_library_line(tmp_path, capsys):
+    # a team part placed from a --library folder: the starter design named no library,
+    # so 'pinlib check board.toml', the command it suggests, said 'unknown part'
+    team = tmp_path / "team"
+    team.mkdir()
+    (team / "eeprom-team.toml").write_text(
+        'format = "pinlib.part/1"\nid = "eeprom-team"\ntitle = "Team EEPROM (invented)"\n'
+        'category = "memory"\nextends = "eeprom-i2c"\n', encoding="utf-8")
+    boards = tmp_path / "boards"
+    boards.mkdir()
+    path = boards / "board.toml"
+    assert main(["new", str(path), "--part", "U1=mcu-3v3", "--part", "U2=eeprom-team",
+                 "--library", str(team)]) == 0, capsys.readouterr().err
+    assert 'library = ["../team"]' in path.read_text(encoding="utf-8")
+    design = load_design(path)
+    assert [d.part_id for d in design.bus("i2c").devices] == ["mcu-3v3", "eeprom-team"]
+    assert main(["check", str(path)]) in (0, 1)

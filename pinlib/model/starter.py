@@ -189,7 +189,8 @@ def _bus(group, members, bridges=()) -> tuple[list[str], bool]:
     return out, False
 
 
-def starter_text(title: str, placed: list[tuple[Placement, object]]) -> tuple[str, int]:
+def starter_text(title: str, placed: list[tuple[Placement, object]],
+                 library: list[str] | tuple[str, ...] = ()) -> tuple[str, int]:
     """The text of a starter design file.
 
     Parameters
@@ -198,6 +199,10 @@ def starter_text(title: str, placed: list[tuple[Placement, object]]) -> tuple[st
         The design's title.
     placed : list of (Placement, Part)
         Each placed part with its library part, in the order given.
+    library : list of str
+        Team library folders for the design's ``library`` line, as the design file
+        names them (relative to its folder): without them a team part placed from a
+        ``--library`` folder would be unknown when the design is next read.
 
     Returns
     -------
@@ -210,9 +215,13 @@ def starter_text(title: str, placed: list[tuple[Placement, object]]) -> tuple[st
     out = ["# A starter design written by 'pinlib new': every length, rail and clock",
            "# below is a placeholder to replace with your board's own.  Check it with",
            "#   pinlib check THIS-FILE",
-           'format = "pinlib.design/1"', f"title = {_toml_string(title)}", "",
-           "# An example outer-layer trace over FR-4: put your board's stack-up here.",
-           "[board.geometry.outer]"]
+           'format = "pinlib.design/1"', f"title = {_toml_string(title)}"]
+    if library:
+        out += ["# The team library folders of the parts, relative to this file.",
+                "library = [" + ", ".join(_toml_string(f) for f in library) + "]"]
+    out += ["",
+            "# An example outer-layer trace over FR-4: put your board's stack-up here.",
+            "[board.geometry.outer]"]
     out += [f"{k} = {v!r}".replace("'", '"') for k, v in STARTER_GEOMETRY.items()]
     on_bus: set[str] = set()
     buses = 0

@@ -26,7 +26,9 @@ examples:
   pinlib check board.toml
 
 Every length, rail and clock in the written file is a placeholder, marked so in a
-comment: replace them with the board's own.  An existing file is not overwritten.
+comment: replace them with the board's own.  The --library folders go into the
+design's library line, so its team parts are found when it is read again.  An existing
+file is not overwritten.
 
 exit status: 0 written, 2 an unknown part, a bad REF=PART, or the file exists.
 """
@@ -73,6 +75,24 @@ def parse_placements(items) -> list[tuple[str, str]]:
     return list(out.items())
 
 
+def _design_folders(folders, design) -> list[str]:
+    """The ``--library`` folders as the design's ``library`` line names them: relative to
+    the design file's folder (forward slashes), or absolute where no relative path leads
+    there (another drive)."""
+    here = os.path.dirname(os.path.abspath(design))
+    out = []
+    for folder in folders:
+        full = os.path.abspath(folder)
+        try:
+            shown = os.path.relpath(full, here)
+        except ValueError:  # Windows: another drive
+            shown = full
+        shown = shown.replace(os.sep, "/")
+        if shown not in out:
+            out.append(shown)
+    return out
+
+
 def run(args) -> int:
     from pinlib.core.errors import InputError, WriteError
     from pinlib.core.tomlfile import atomic_write, refuse_irregular_target
@@ -95,7 +115,7 @@ def run(args) -> int:
             raise InputError(text.format(part=pid), field="--part", value=f"{ref}={pid}")
         placed.append((Placement(ref, pid), part))
     title = args.title or os.path.splitext(os.path.basename(args.design))[0]
-    text, buses = starter_text(title, placed)
+    text, buses = starter_text(title, placed, _design_folders(args.library, args.design))
     if not buses:
         raise InputError(M.NO_BUS_FOR_PARTS, field="--part",
                          value=", ".join(f"{r}={p}" for r, p in placements),
