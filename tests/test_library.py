@@ -194,6 +194,27 @@ def test_a_source_without_its_value_is_not_claimed_for_the_inherited_value(built
     assert (c_in.value, c_in.source, c_in.origin) == (6e-12, "rev A", "leaf")
 
 
+def test_a_misspelt_value_table_is_blamed_on_its_own_file(builtin, tmp_path):
+    # invented: mid sets c_in as a value table; leaf misspelt 'value' in its own. The
+    # two tables merged key by key, and the unknown key was blamed on mid's file and
+    # line (a built-in class's file, for a team part), never on the file to correct
+    team = tmp_path / "team"
+    mid = write(team, "mid.toml", part("mid", "base", """
+        [pins.sda]
+        c_in = { value = "8 pF", source = "typical of the class" }
+        """))
+    leaf = write(team, "leaf.toml", part("leaf", "mid", """
+        [pins.sda]
+        c_in = { vlaue = "6 pF", source = "rev A" }
+        """))
+    lib = load_library([team])
+    assert "leaf" not in lib.parts and "mid" in lib.parts
+    errs = [e for e in lib.problems if e.field and e.field.startswith("pins.sda.c_in")]
+    assert errs and all(e.file == str(leaf) for e in errs), [str(e) for e in errs]
+    assert not [e for e in lib.problems if e.file == str(mid)]
+    assert errs[0].line == line_of_text(leaf, "vlaue")
+
+
 def test_three_level_chain_and_origins(builtin, tmp_path):
     team = tmp_path / "team"
     mid = write(team, "mid.toml", part("mid", "base", """

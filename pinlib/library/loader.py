@@ -157,7 +157,7 @@ def _merge(parent: dict, child: dict, parent_origin: dict, child_id: str, top=Tr
             merged[key] = value
             continue
         if (isinstance(value, dict) and isinstance(merged.get(key), dict)
-                and not _is_value_table(value)):
+                and not _is_value_table(value) and not _is_value_table(merged[key])):
             sub, sub_origin = _merge(merged[key], value,
                                      {k[1:]: v for k, v in groups.get(key, {}).items()},
                                      child_id, top=False)
@@ -178,7 +178,9 @@ def _is_value_table(d: dict) -> bool:
     """A value with its provenance (``{ value, basis, source, typ }``): it replaces what
     it extends whole.  So does such a table that names a source or a basis without its
     value, which merged would have claimed that source for the inherited value (it is
-    then refused for the missing value, at its own file and line)."""
+    then refused for the missing value, at its own file and line).  And any table that
+    stands where the parent has a value table (``{ vlaue = ... }``, ``{ typ = ... }``)
+    replaces it whole too: merged, its mistakes were blamed on the parent's file."""
     keys = set(d)
     return bool(keys) and keys <= {"value", "basis", "source", "typ"} and bool(
         keys & {"value", "basis", "source"})
