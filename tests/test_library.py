@@ -398,6 +398,40 @@ def test_the_walk_of_a_library_folder_is_bounded(builtin, tmp_path, monkeypatch)
 
 # --- overlays ---------------------------------------------------------------------------
 
+def test_two_team_parts_with_one_id_are_neither_used(builtin, tmp_path, monkeypatch):
+    # invented: the same id with two c_in values in two folders. The file the walk
+    # read first was used (by design 'parts show' and 'check' without a word, the other
+    # dropped with a warning), so which value a design got depended on file names
+    env_dir, cli_dir = tmp_path / "env", tmp_path / "cli"
+    first = write(env_dir, "x.toml", part("x", "base", '[pins.sda]\nc_in = "6 pF"\n'))
+    second = write(cli_dir, "x-copy.toml", part("x", "base", '[pins.sda]\nc_in = "9 pF"\n'))
+    write(cli_dir, "y.toml", part("y", "x"))
+    monkeypatch.setenv("PINLIB_LIBRARY", str(env_dir))
+    lib = load_library([cli_dir])
+    assert "x" not in lib.parts and "y" not in lib.parts
+    with pytest.raises(LibraryError) as info:
+        lib.get("x", file="board.toml", line=9, field="bus[0].devices[1].part")
+    text = str(info.value)
+    assert "two team parts share one id" in text
+    assert str(first) in text and str(second) in text and "board.toml:9" in text
+    with pytest.raises(LibraryError, match="two team parts share one id"):
+        lib.get("y")
+    lazy = load_library([cli_dir], lazy=True)
+    assert "x" not in lazy.parts
+    with pytest.raises(LibraryError, match="two team parts share one id"):
+        lazy.get("x")
+    with pytest.raises(LibraryError, match="two team parts share one id"):
+        load_library([cli_dir], strict=True)
+
+
+def test_a_folder_inside_another_is_not_two_parts(builtin, tmp_path):
+    # invented: team/sub named on its own as well as inside team: one file, one part
+    team = tmp_path / "team"
+    write(team / "sub", "x.toml", part("x", "base"))
+    lib = load_library([team, team / "sub"])
+    assert not lib.problems and "x" in lib.parts
+
+
 def test_overlay_order_and_override(builtin, tmp_path, monkeypatch):
     env_dir, design_dir, cli_dir = tmp_path / "env", tmp_path / "design", tmp_path / "cli"
     over = write(env_dir, "base.toml", BASE.replace('c_in = "10 pF"', 'c_in = "7 pF"'))

@@ -355,6 +355,14 @@ def _(env):
     return _fails(lambda e: load_library([e.tmp / "team"], env=False, strict=True), env)
 
 
+@case("DUPLICATE_TEAM_ID_HINT")
+def _(env):
+    env.write("team/first.toml", PART.format(id="same"))
+    env.write("team/second.toml", PART.format(id="same"))
+    err = _fails(lambda e: load_library([e.tmp / "team"], env=False).get("same"), env)
+    return err.hint
+
+
 @case("DUPLICATE_BUILTIN_ID")
 def _(env):
     env.write("builtin/a.toml", PART.format(id="same"))

@@ -81,6 +81,8 @@ LIBRARY_FOLDER_NOT_FOUND = "library folder not found"
 # folders.py (the hint of LIBRARY_FOLDER_NOT_FOUND when a command was told to read it)
 FOLDER_NAMED_BY = "{source} names it: correct or remove it there"
 DUPLICATE_TEAM_ID = "two team parts share one id"
+DUPLICATE_TEAM_ID_HINT = ("neither is used until one is renamed or removed (which one is "
+                          "meant is not known)")
 DUPLICATE_BUILTIN_ID = "two built-in parts share one id"
 EXTENDS_NOT_AN_ID = "extends names a part id"
 EXTENDS_CYCLE = "an extends cycle"

@@ -4,7 +4,7 @@ Order of precedence, lowest first: the built-in library, then the folders of the
 ``PINLIB_LIBRARY`` environment variable (``os.pathsep``-separated), then folders a
 design names in ``library``, then ``--library`` folders from the command line.  A team
 part with the id of a built-in part overrides it (the listing says so); two team parts
-with one id is an error naming both files.
+with one id is an error naming both files, and neither is used.
 
 ``extends`` is resolved by merging the parent's raw table under the child's: tables
 merge key by key (so a child may change one pin field), arrays and values replace.
@@ -69,6 +69,10 @@ class PartFile:
     text: str
     builtin: bool
     _index: dict | None = field(default=None, repr=False, compare=False)
+    #: The problems of other team files that state this file's id (each names the
+    #: other file): the id is ambiguous, and neither file's part is used (which one
+    #: was meant is not known; the order of the walk would choose).
+    others: list = field(default_factory=list, compare=False)
 
     @property
     def id(self) -> str:
@@ -289,7 +293,8 @@ class LazyParts(Mapping):
             self._failed.add(pid)
             return None
         except LibraryError as err:
-            self._problems.append(err)
+            if not any(p is err for p in self._problems):  # a shared id: listed once
+                self._problems.append(err)
             self._failed.add(pid)
             return None
         self._done[pid] = part
@@ -378,6 +383,7 @@ class Library:
             if part_id in self.parts:
                 return []
             chain = {str(self.files[c].path) for c in self.chain(part_id)}
+            chain |= {e.file for c in self.chain(part_id) for e in self.files[c].others}
             return [p for p in self.problems if p.file in chain]
         return [p for p in self.unread() if Path(p.file).stem == part_id]
 
@@ -468,6 +474,7 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
     # A folder that is a system folder or too big to be a library is refused whatever
     # ``strict`` says: its parts would be a guess, and walking it may never end.
     loaded: set[Path] = set()
+    read_files: set[Path] = set()  # a file read through a folder and a folder inside it
     for folder, is_builtin in sources:
         if not folder.is_dir():
             err = LibraryError(M.LIBRARY_FOLDER_NOT_FOUND, file=str(folder),
@@ -488,6 +495,10 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
             raise walk_problems[0]
         lib.problems.extend(walk_problems)
         for path in paths:
+            real = Path(os.path.realpath(path))
+            if real in read_files:
+                continue  # one file, named through two folders: read once
+            read_files.add(real)
             try:
                 pf = read_part_file(path, builtin=is_builtin)
             except LibraryError as err:
@@ -499,10 +510,12 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
             if not is_builtin and pid in team_seen and team_seen[pid] != path:
                 err = LibraryError(M.DUPLICATE_TEAM_ID, file=str(path),
                                    line=pf.line(("id",)), field="id", value=pid,
-                                   hint=f"the other is {team_seen[pid]}")
+                                   hint=f"the other is {team_seen[pid]}; "
+                                        + M.DUPLICATE_TEAM_ID_HINT)
                 if strict:
                     raise err
                 lib.problems.append(err)
+                found[pid].others.append(err)  # the first file's part is not used either
                 continue
             if pid in found and found[pid].builtin and is_builtin:
                 err = LibraryError(M.DUPLICATE_BUILTIN_ID, file=str(path),
@@ -528,7 +541,8 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
         except LibraryError as err:
             if strict:
                 raise
-            lib.problems.append(err)
+            if not any(p is err for p in lib.problems):  # a shared id: listed once
+                lib.problems.append(err)
     return lib
 
 
@@ -544,6 +558,8 @@ def _merged_raw(pid: str, files: dict[str, PartFile], stack: list[str]):
     chain = list(stack) + [pid]  # child last; followed towards the root
     while True:
         pf = files[chain[-1]]
+        if pf.others:
+            raise pf.others[0]  # the problem already listed, naming both files
         parent = pf.raw.get("extends")
         if parent is None:
             break
