@@ -424,11 +424,13 @@ def test_two_team_parts_with_one_id_are_neither_used(builtin, tmp_path, monkeypa
         load_library([cli_dir], strict=True)
 
 
-def test_a_folder_inside_another_is_not_two_parts(builtin, tmp_path):
-    # invented: team/sub named on its own as well as inside team: one file, one part
+def test_a_folder_inside_another_is_not_two_parts(builtin, tmp_path, monkeypatch):
+    # invented: team/sub named on its own (absolute) as well as inside team (relative):
+    # one file, one part; it was reported as two team parts sharing one id
     team = tmp_path / "team"
     write(team / "sub", "x.toml", part("x", "base"))
-    lib = load_library([team, team / "sub"])
+    monkeypatch.chdir(tmp_path)
+    lib = load_library(["team", team / "sub"])
     assert not lib.problems and "x" in lib.parts
 
 
