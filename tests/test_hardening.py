@@ -631,6 +631,27 @@ def test_a_new_part_file_gets_the_mode_of_any_new_file(team, monkeypatch):
     assert (team / "mine.toml").stat().st_mode & 0o777 == 0o640  # an old file keeps its own
 
 
+def test_a_read_only_file_is_never_replaced(team, tmp_path, monkeypatch, capsys):
+    # A part file or design made read-only (by its owner, or by a version control tool
+    # until checked out) was replaced all the same: the write's rename asks only the
+    # folder.  As root every file is writable, so no write bit at all counts as read-only.
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    mine = team / "mine.toml"
+    kept = mine.read_text(encoding="utf-8")
+    mine.chmod(0o444)
+    with pytest.raises(WriteError, match="read-only") as info:
+        record_value(load_library([team]), "mine", "sda.c_in", "6 pF", "rev C")
+    assert info.value.file == str(mine) and "chmod u+w" in str(info.value)
+    assert mine.read_text(encoding="utf-8") == kept
+    design = tmp_path / "design.toml"
+    design.write_text(SMALL_I2C, encoding="utf-8")
+    design.chmod(0o444)
+    assert main(["swap", str(design), "U2=rtc-i2c", "--write"]) == 2
+    err = capsys.readouterr().err
+    assert "read-only" in err and str(design) in err and "Traceback" not in err
+    assert design.read_text(encoding="utf-8") == SMALL_I2C
+
+
 @pytest.mark.parametrize("step", ["write", "replace"])
 def test_a_failing_swap_write_leaves_the_design_as_it_was(tmp_path, monkeypatch, capsys, step):
     monkeypatch.delenv("PINLIB_LIBRARY", raising=False)

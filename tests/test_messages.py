@@ -245,6 +245,14 @@ def _(env):
     return _fails(lambda e: atomic_write(e.tmp / "folder.toml", "x = 1\n"), env)
 
 
+@case("READ_ONLY_TARGET")
+def _(env):
+    path = env.tmp / "locked.toml"
+    path.write_text("x = 1\n", encoding="utf-8")
+    path.chmod(0o444)
+    return _fails(lambda e: atomic_write(path, "x = 2\n"), env)
+
+
 # ---------------------------------------------------------------- quantity
 @case("YES_NO_AS_QUANTITY")
 def _(env):

@@ -57,6 +57,7 @@ CANNOT_WRITE_IN_FOLDER = "cannot write in this folder: {reason}"
 CANNOT_WRITE_FILE = "cannot write the file: {reason}"
 NOT_A_REGULAR_TARGET = ("not a regular file (a folder, a device, a pipe or a socket is "
                         "never written over)")
+READ_ONLY_TARGET = "the file is read-only, and pinlib does not replace a read-only file"
 
 # ---------------------------------------------------------------- pinlib/core/quantity.py
 YES_NO_AS_QUANTITY = "a yes/no value where a quantity belongs"

@@ -363,7 +363,8 @@ def refuse_irregular_target(path: str | os.PathLike, hint: str | None = None) ->
     """Raise a WriteError when ``path`` (or what its link leads to) exists and is not a
     regular file: a folder, a device (``/dev/full``), a pipe or a socket.  Replaced by a
     regular file it would be gone (a device node for every user of the machine).  A
-    command calls it before its work, so that the refusal comes at once."""
+    read-only file is refused too.  A command calls it before its work, so that the
+    refusal comes at once."""
     try:
         mode = os.stat(path).st_mode
     except OSError:
@@ -371,6 +372,12 @@ def refuse_irregular_target(path: str | os.PathLike, hint: str | None = None) ->
     if not stat.S_ISREG(mode):
         raise WriteError(M.NOT_A_REGULAR_TARGET, file=str(path),
                          expected="the name of a regular file, or of a new one", hint=hint)
+    # A read-only file (locked by a version control tool, or by its owner) would be
+    # replaced all the same by the write's rename, which asks only the folder; root may
+    # write any file, so a file with no write permission for anyone is read-only too.
+    if not (mode & 0o222) or not os.access(path, os.W_OK):
+        raise WriteError(M.READ_ONLY_TARGET, file=str(path),
+                         hint="make it writable first (chmod u+w)")
 
 
 def _line_ending(path: Path) -> str:
