@@ -33,7 +33,8 @@ PINS = ("[Pin]  signal_name  model_name\n"
         "4      VDD          POWER\n")
 
 
-def test_import_shows_the_guess_and_writes_nothing(tmp_path, capsys):
+def test_import_shows_the_guess_and_writes_nothing(tmp_path, capsys, monkeypatch):
+    monkeypatch.setenv("COLUMNS", "80")
     ibs = tmp_path / "invented.ibs"
     ibs.write_text(ibis_text(pins=PINS, edges=""))
     parts = tmp_path / "parts"
@@ -43,11 +44,15 @@ def test_import_shows_the_guess_and_writes_nothing(tmp_path, capsys):
     assert code == 0
     assert "SPI_SCK" in out and "spi-sclk" in out and "(no guess)" in out
     assert not parts.exists()
-    # the --pin list it prints writes the part; so does --yes, to the same values
-    line = next(ln for ln in out.splitlines() if "--pin" in ln and "pinlib" in ln)
-    argv = shlex.split(line)[1:]
-    argv[argv.index("ID")] = "demo-g"
-    assert main(argv + ["--into", str(parts)]) == 0
+    # the command it prints (the --id and --into given, lines continued with " \\"
+    # within 80 columns) writes the part; so does --yes, to the same values
+    lines = out.splitlines()
+    start = next(i for i, ln in enumerate(lines) if ln.lstrip().startswith("pinlib"))
+    command = lines[start:]
+    assert all(len(ln) <= 80 for ln in command), command  # the tmp path fits a line
+    argv = shlex.split(" ".join(command).replace(" \\ ", " "))[1:]
+    assert argv[argv.index("--id") + 1] == "demo-g" and str(parts) in argv
+    assert main(argv) == 0
     assert main(["parts", "import", str(ibs), "--component", "DEMO-IO", "--id", "demo-y",
                  "--into", str(parts), "--yes"]) == 0
     capsys.readouterr()

@@ -72,10 +72,13 @@ def _listing(ibis) -> None:
               + (f", {vr.typ:g} V" if vr is not None else ""))
 
 
-def _guess(ibis, component: str, file: str) -> dict[str, str]:
+def _guess(ibis, component: str, file: str, part_id: str | None = None,
+           into: str | None = None) -> dict[str, str]:
     """The pin functions guessed from the component's signal names, printed with the
-    --pin list that writes them."""
+    command that writes them (the --id and --into given, else placeholders), as a shell
+    reads it and fitted to the terminal's width."""
     from pinlib.library.pinguess import guess_function
+    from pinlib.present.terminal import fitted_command, shell_word
 
     if component not in ibis.components:
         raise LibraryError(M.IBIS_UNKNOWN_COMPONENT, file=ibis.path, field="--component",
@@ -93,9 +96,15 @@ def _guess(ibis, component: str, file: str) -> dict[str, str]:
     if not guess:
         raise InputError(M.IBIS_NO_GUESS.format(component=component), field="--pin",
                          expected="--pin PIN=FUNCTION, e.g. SDA=i2c-sda")
-    mapping = " ".join(f"--pin {k}={v}" for k, v in guess.items())
-    print(f"to write the part, add --yes (with --id and --into), or give the mapping:\n"
-          f"  pinlib parts import {file} --component {component} {mapping} --id ID")
+    # an option and its value kept on one line
+    words = ["pinlib", "parts", "import", shell_word(file),
+             f"--component {shell_word(component)}"]
+    words += [f"--pin {shell_word(f'{k}={v}')}" for k, v in guess.items()]
+    words.append(f"--id {shell_word(part_id) if part_id else 'ID'}")
+    if into:
+        words.append(f"--into {shell_word(into)}")
+    print("to write the part, add --yes (with --id and --into), or give the mapping:")
+    print(fitted_command(" ", words))
     return guess
 
 
@@ -111,7 +120,7 @@ def run_import(args, load_library, default_folder) -> int:
         return 0
     pins = _mapping(args.pin)
     if not pins:
-        pins = _guess(ibis, args.component, args.file)
+        pins = _guess(ibis, args.component, args.file, args.part_id, args.into)
         if not args.yes:
             return 0
     if not pins or not args.part_id:
