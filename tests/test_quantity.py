@@ -132,6 +132,51 @@ def test_wrong_dimension_names_field_value_and_expected_unit():
     assert "pins.sda.c_in" in str(err) and "10 pH" in str(err) and "H" in err.problem
 
 
+@pytest.mark.parametrize(("text", "unit", "expected"), [
+    # '47k' and '10K' were read, '4.7k' and '2.2M' refused: the same trailing letter
+    ("4.7k", "Ω", 4700.0),  # from memory: SI prefix k = 1e3
+    ("2.2M", "Ω", 2.2e6),  # from memory: SI prefix M = 1e6
+    ("4.7R", "Ω", 4.7),  # from memory: IEC 60062, R marks ohms
+    ("1.5M", "Hz", 1.5e6),  # from memory: SI prefix M = 1e6
+])
+def test_a_trailing_prefix_letter_takes_decimals(text, unit, expected):
+    assert parse(text, unit) == pytest.approx(expected, rel=1e-12)
+
+
+def test_mhz_in_lower_case_is_refused_with_both_readings():
+    # "20 mhz" was read as 20 millihertz: an SPI clock of 0.02 Hz passed every check with
+    # seconds of slack.  Only 'mHz' is millihertz; 'Mhz', 'khz' and 'MHZ' read as before.
+    for text in ("20 mhz", "20 mHZ", "20 m hz"):
+        with pytest.raises(UnitError) as info:
+            parse(text, "Hz", field="clock")
+        assert '"20 MHz" or "20 mHz"' in str(info.value), str(info.value)
+    assert parse("20 mHz", "Hz") == pytest.approx(20e-3, rel=1e-12)  # SI: m = 1e-3
+    assert parse("20 Mhz", "Hz") == parse("20 MHZ", "Hz") == 20e6  # SI: M = 1e6
+
+
+@pytest.mark.parametrize(("text", "unit", "hint"), [
+    ("10 pf", "F", 'write "10 pF"'),
+    ("10 PF", "F", 'write "10 pF"'),
+    ("2 uf", "F", 'write "2 µF"'),
+    ("10 NS", "s", 'write "10 ns"'),
+    ("10 ma", "A", 'write "10 mA" or "10 MA"'),
+    ("10 p", "F", 'a prefix without its unit: write "10 pF"'),
+    ("4.7 k", "Ω", 'a prefix without its unit: write "4.7 kΩ"'),
+    ("10,5 pF", "F", 'a decimal comma: write a point, "10.5 pF"'),
+])
+def test_an_unknown_unit_says_what_was_likely_meant(text, unit, hint):
+    # the message said only "unknown unit 'pf'" and gave the generic example '8 pF'
+    with pytest.raises(UnitError) as info:
+        parse(text, unit, field="pins.sda.c_in")
+    assert info.value.hint and hint in info.value.hint, str(info.value)
+
+
+def test_a_thousands_comma_is_not_read_as_a_decimal_one():
+    with pytest.raises(UnitError) as info:
+        parse("1,000 pF", "F")
+    assert not info.value.hint  # 1000 pF or 1.000 pF: no guess
+
+
 @pytest.mark.parametrize(("value", "unit", "suggested"), [
     ("8", "F", '"8 pF"'), (8, "F", '"8 pF"'), (3.3, "V", '"3.3 V"'), ("4700", "Ω", '"4700 kΩ"'),
 ])

@@ -90,7 +90,8 @@ _PLAIN = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
 #: No quantity or threshold is longer; a longer text is refused before any pattern sees it
 #: (the patterns below take time that grows faster than the length of what they scan).
 MAX_QUANTITY_TEXT = 100
-_RKM = re.compile(r"^\s*(\d*)([RKkMGmunpµμ])(\d+)\s*(.*?)\s*$|^\s*(\d+)([RKkMG])\s*$")
+_RKM = re.compile(r"^\s*(\d*)([RKkMGmunpµμ])(\d+)\s*(.*?)\s*$"
+                  r"|^\s*(\d+(?:\.\d+)?)([RKkMG])\s*$")
 
 
 def unit_name(unit: str) -> str:
@@ -117,6 +118,11 @@ def _split_unit(text: str) -> tuple[float, str] | None:
     if len(text) >= 2 and text[0] in _PREFIX and text[1:] in _UNIT_ALIAS:
         base = _UNIT_ALIAS[text[1:]]
         if base in ("%",) or (text[1:] == "R"):
+            return None
+        if text[0] == "m" and text[1:] in ("hz", "HZ"):
+            # 'mhz': a unit written out of case, whose prefix's case cannot be trusted
+            # either: read as millihertz, a clock of "20 mhz" passed every check.  Only
+            # 'mHz' is millihertz; this is refused with both readings offered.
             return None
         return _PREFIX[text[0]], base
     return None
@@ -233,8 +239,9 @@ def _bare_hint(x: float, unit: str, field: str | None = None) -> str:
 def _parse_text(text: str, unit: str, field: str | None) -> float:
     rkm = _RKM.match(text)
     if rkm:
-        if rkm.group(5) is not None:  # '47R', '10K': a trailing letter, no decimals
-            whole, letter, frac, rest = rkm.group(5), rkm.group(6), "", ""
+        if rkm.group(5) is not None:  # '47R', '10K', '4.7k': a trailing letter
+            whole, _, frac = rkm.group(5).partition(".")
+            letter, rest = rkm.group(6), ""
         else:
             whole, letter, frac, rest = rkm.group(1), rkm.group(2), rkm.group(3), rkm.group(4)
         if unit == "Ω" and letter in "mnpµμu":
@@ -266,13 +273,47 @@ def _parse_text(text: str, unit: str, field: str | None) -> float:
     rest = rest.replace("·", "").replace(" ", "")
     got = _split_unit(rest)
     if got is None:
-        raise _fail(text, unit, field, M.UNKNOWN_UNIT.format(unit=rest))
+        raise _fail(text, unit, field, M.UNKNOWN_UNIT.format(unit=rest),
+                    hint=_unit_hint(text, m.group(1), rest, unit))
     scale, base = got
     if base != unit:
         raise _fail(text, unit, field, M.WRONG_DIMENSION.format(unit=base, quantity=UNITS[unit][0]))
     if base == "%":
         return number / 100.0
     return _scaled(m.group(1), scale)
+
+
+#: The prefix each scale is written with in a suggestion.
+_PREFIX_SHOWN = {1e12: "T", 1e9: "G", 1e6: "M", 1e3: "k", 1.0: "", 1e-3: "m", 1e-6: "µ",
+                 1e-9: "n", 1e-12: "p", 1e-15: "f", 1e-18: "a"}
+#: A decimal comma ("10,5 pF"), not a thousands separator ("1,000 pF": three digits).
+_DECIMAL_COMMA = re.compile(r"^\s*[+-]?\d+,(?!\d{3}(?!\d))\d+(?![\d,])")
+
+
+def _unit_hint(text: str, number: str, rest: str, unit: str) -> str | None:
+    """What an unknown unit most likely meant, as the value to write: a decimal comma
+    (``"10,5 pF"``), a prefix without its unit (``"10 p"``, ``"4.7 k"``), or a unit in the
+    wrong case (``"10 pf"``; both readings where the case decides, ``"MHz" or "mHz"``).
+    None when nothing is likely."""
+    if unit not in ("Ω", "F", "H", "s", "V", "A", "Hz", "W"):
+        return None
+    if _DECIMAL_COMMA.match(text):
+        fixed = text.strip().replace(",", ".", 1)
+        return f'a decimal comma: write a point, "{fixed}"'
+    if rest in _PREFIX:
+        return f'a prefix without its unit: write "{number} {rest}{unit}"'
+    shown = []
+    # a clock in MHz before mHz; a current in mA before MA
+    letters = sorted([*_PREFIX.items(), ("", 1.0)], key=lambda kv: kv[1],
+                     reverse=unit == "Hz")
+    for letter, scale in letters:
+        written = f"{number} {_PREFIX_SHOWN[scale]}{unit}"
+        if (letter + unit).lower() == rest.lower() and written not in shown:
+            shown.append(written)
+    if not shown:
+        return None
+    case = " (the case of a prefix matters: M is mega, m milli)" if len(shown) > 1 else ""
+    return "write " + " or ".join(f'"{s}"' for s in shown) + case
 
 
 def _scaled(number: str, scale: float) -> float:

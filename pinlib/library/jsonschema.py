@@ -43,6 +43,9 @@ def _unit_regex(unit: str) -> str:
     spellings = [k for k, v in _UNIT_ALIAS.items() if v == unit]
     prefixable = [s for s in spellings if s not in ("R", "%")]
     forms = [f"[{_PREFIXES}]?{_SP}{_alt(prefixable)}"] if prefixable else []
+    if unit == "Hz":  # 'mhz' is refused (milli or mega?): only 'mHz' takes the m
+        others = _PREFIXES.replace("m", "")
+        forms = [f"[{_PREFIXES}]?{_SP}Hz", f"[{others}]?{_SP}{_alt(['hz', 'HZ'])}"]
     if "R" in spellings:
         forms.append("R")
     if "%" in spellings:
@@ -65,7 +68,8 @@ def quantity_pattern(unit: str) -> str:
     plain = rf"{_NUMBER}{_GAP}{_unit_regex(unit)}"
     exact = _alt([k for k, v in _UNIT_ALIAS.items() if v == unit])
     letters = "RKkMGmunpµμ" if unit == "Ω" else "KkMGmunpµμ"
-    rkm = rf"\d*[{letters}]\d+\s*{exact}?|\d+[{'RKkMG' if unit == 'Ω' else 'KkMG'}]"
+    rkm = (rf"\d*[{letters}]\d+\s*{exact}?"
+           rf"|\d+(?:\.\d+)?[{'RKkMG' if unit == 'Ω' else 'KkMG'}]")
     if unit == "%":
         return rf"^\s*{plain}\s*$"
     return rf"^\s*(?:{plain}|{rkm})\s*$"
