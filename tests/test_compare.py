@@ -485,6 +485,30 @@ def test_check_whose_worst_case_moves_to_another_device_is_the_same_check():
     assert c.format().startswith("b VOH SDA U4 (was SDA U1): pass → warn")
 
 
+def test_a_margin_that_moves_without_a_status_change_is_listed():
+    # invented check values. A part's f_max cut from 400 kHz to the bus clock of 100 kHz
+    # took the device-speed margin from +75 % to +0 %: still a pass, and the change list
+    # said "No check changed status" and listed no figure (the limit is no figure)
+    chk = {"id": "device-speed", "status": "pass", "value": 100e3, "limit": 400e3,
+           "unit": "Hz", "margin": 0.75, "source": "src", "message": "", "subject": "U2"}
+    big = dict(chk, id="setup-time", value=7.2e-7, limit=1e-7, unit="s", margin=6.2)
+    old = _result({}, checks=[chk, big])
+    new = _result({}, checks=[dict(chk, limit=100e3, margin=0.0),
+                              dict(big, value=7.13e-7, margin=6.13)])
+    changes = compare(old, new)  # default 5 %
+    assert not changes.status_changes and not changes.empty
+    # derived: +6.2 -> +6.13 moved 7 points but 1.1 % of itself: not listed
+    (m,) = changes.margin_changes
+    assert m.format() == ("b Device speed U2: margin +75 % → +0 % "
+                          "(100 kHz, limit 400 kHz → 100 kHz)")
+    assert m.to_json()["status"] == "pass" and m.to_json()["new_margin"] == 0.0
+    assert "Margins that moved more than 5 points (status unchanged):" in \
+        changes.format_text()
+    assert changes.to_json()["margin_changes"][0]["check"] == "device-speed"
+    # derived: 75 points is within a threshold of 80 %
+    assert not compare(old, new, threshold=0.8).margin_changes
+
+
 def test_parse_change_threshold():
     assert parse_change_threshold("5%") == pytest.approx(0.05)
     assert parse_change_threshold("2.5 %") == pytest.approx(0.025)

@@ -593,6 +593,10 @@ def test_change_list_against_the_snapshot(tmp_path):
     assert 0 < len(shown) <= len(changes.figure_changes)
     for fc in shown:
         assert f"<td>{html.escape(figure_label(fc.name))}</td>" in section
+    # a margin that moved without a change of status is listed too (it was left out)
+    assert changes.margin_changes
+    for mc in changes.margin_changes:
+        assert f"<li>{html.escape(mc.format())}</li>" in section
     assert review._no_snapshot_text(after) not in page
 
 

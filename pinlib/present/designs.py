@@ -97,10 +97,12 @@ def _swap_lines(s, width: int) -> list[str]:
         return out
     c = s.changes
     moved = (f"{len(c.status_changes)} check(s) changed status, "
-             f"{len(c.figure_changes)} figure(s) moved")
+             + (f"{len(c.margin_changes)} margin(s) moved, " if c.margin_changes else "")
+             + f"{len(c.figure_changes)} figure(s) moved")
     written = "; written" if s.written else ""
     out = [head + f"{s.before.upper()} → {s.after.upper()}  {where}; {moved}{written}"]
     out += ["    " + ch.format() for ch in c.status_changes]
+    out += ["    " + ch.format() for ch in c.margin_changes]
     return out
 
 

@@ -305,6 +305,10 @@ def _text(design, swap_rows, rows, before, after, changes, detail=False) -> list
         out += ["  " + c.format() for c in changes.status_changes]
     else:
         out.append("No check changed status.")
+    if changes.margin_changes:
+        out.append(f"Margins that moved more than {changes.threshold * 100:g} points "
+                   "(status unchanged):")
+        out += ["  " + c.format() for c in changes.margin_changes]
     moved = _moved(rows)
     if detail:
         out.append("")

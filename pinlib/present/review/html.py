@@ -342,6 +342,10 @@ class _Html:
                        f'<td class="num">{_e(limit_s)}</td><td class="src">{_e(c.source)}'
                        "</td></tr>")
             self.w("</tbody></table>")
+        if cl.margin_changes:
+            self.w(f"<h3>Margins that moved more than {cl.threshold * 100:g} points "
+                   "(status unchanged)</h3>", "<ul>",
+                   *[f"<li>{_e(c.format())}</li>" for c in cl.margin_changes], "</ul>")
         if cl.figure_changes:
             self.w(f"<h3>Figures that moved more than {_e(pct)}</h3>", "<table><thead><tr>"
                    + "".join(f'<th scope="col">{x}</th>' for x in (

@@ -13,6 +13,7 @@ from pinlib.core.errors import InputError
 from pinlib.core.labels import check_label, figure_label, shown_figures
 from pinlib.core.quantity import Threshold, format_si, format_threshold
 from pinlib.core.valueclass import value_class
+from pinlib.model.result import percent_text
 from pinlib.studies.compare.figures import (
     DEFAULT_THRESHOLD,
     _checks,
@@ -97,6 +98,46 @@ class StatusChange:
                 "old_margin": self.old_margin, "new_margin": self.new_margin,
                 "source": self.source, "message": self.message,
                 "old_subject": self.old_subject}
+
+
+@value_class
+class MarginChange:
+    """A check whose status stayed but whose margin moved by more than the threshold, in
+    points and as a fraction of itself (:func:`_margin_moved`), so that a substitution
+    that brings a check to its limit says so though the check still passes."""
+
+    change: StatusChange  # old and new the same status
+
+    def format(self) -> str:
+        c = self.change
+        where = f"{c.path} {check_label(str(c.check))}" + (f" {c.subject}" if c.subject else "")
+        if c.old_subject:
+            where += f" (was {c.old_subject})"
+        values = c.values_text()
+        if c.old_value == c.new_value:  # the limit moved: the value once
+            values = values.replace(f"{format_figure(c.old_value, c.unit)} {_ARROW} ", "", 1)
+        return (f"{where}: margin {percent_text(c.old_margin)} {_ARROW} "
+                f"{percent_text(c.new_margin)} ({values})")
+
+    def to_json(self) -> dict:
+        """A status change's keys, with the one ``status`` in place of ``old``/``new``."""
+        out = {}
+        for key, value in self.change.to_json().items():
+            if key == "old":
+                out["status"] = self.change.new
+            elif key != "new":
+                out[key] = value
+        return out
+
+
+def _margin_moved(o: dict, n: dict, threshold: float) -> bool:
+    """Both margins numbers and apart by more than ``threshold`` in points (a margin of
+    +75 % that fell to +0 %) and as a fraction of the old margin (a margin of +621 %
+    that fell to +613 % moved 8 points, but only 1.3 % of itself: not listed)."""
+    a, b = o.get("margin"), n.get("margin")
+    if not (_is_number(a) and _is_number(b) and math.isfinite(a) and math.isfinite(b)):
+        return False
+    return abs(b - a) > threshold and abs(b - a) > threshold * abs(a)
 
 
 @value_class
@@ -263,6 +304,7 @@ class ChangeList:
     new_status: str | None = None
     status_changes: list[StatusChange] = field(default_factory=list)
     figure_changes: list[FigureChange] = field(default_factory=list)
+    margin_changes: list[MarginChange] = field(default_factory=list)
     part_changes: list[PartChange] = field(default_factory=list)
     notes: list[str] = field(default_factory=list)
     old_created: str | None = None
@@ -276,9 +318,10 @@ class ChangeList:
     @property
     def empty(self) -> bool:
         """True when no check changed status, no figure moved, no part value differs and
-        no bus or coupling appeared or disappeared (a rename alone leaves it empty)."""
+        no check's margin moved, no bus or coupling appeared or disappeared (a rename
+        alone leaves it empty)."""
         return not (self.status_changes or self.figure_changes or self.part_changes
-                    or self.groups)
+                    or self.groups or self.margin_changes)
 
     def rename_lines(self) -> list[str]:
         """``bus i2c renamed to sensors-bus``, ``U6 renamed to U16``."""
@@ -301,6 +344,7 @@ class ChangeList:
             "empty": self.empty,
             "status_changes": [c.to_json() for c in self.status_changes],
             "figure_changes": [c.to_json() for c in self.figure_changes],
+            "margin_changes": [c.to_json() for c in self.margin_changes],
             "part_changes": [c.to_json() for c in self.part_changes],
             "renames": [{"kind": k, "old": o, "new": n} for k, o, n in self.renames],
             "groups": [{"side": sd, "kind": k, "id": g, "checks": n}
@@ -327,6 +371,10 @@ class ChangeList:
         if self.status_changes:
             out.append("Checks whose status changed:")
             out += ["  " + c.format() for c in self.status_changes]
+        if self.margin_changes:
+            out.append(f"Margins that moved more than {self.threshold * 100:g} points "
+                       "(status unchanged):")
+            out += ["  " + c.format() for c in self.margin_changes]
         if self.figure_changes:
             out.append(f"Figures that moved more than {pct}:")
             out += ["  " + c.format() for c in shown_changes(self.figure_changes)]
@@ -410,17 +458,24 @@ def compare(old_snapshot: dict, new_snapshot: dict, *, threshold: float = DEFAUL
         top = top_id((n or o)["_path"])
         # a bus or coupling on one side only is counted (group_lines); of a new one only
         # the checks that warn or fail are listed
-        if os_ == ns_ or top in absent or (top in fresh and ns_ in ("pass", None)):
+        if top in absent or (top in fresh and ns_ in ("pass", None)):
+            continue
+        # a check whose status stayed is listed when its margin moved (MarginChange)
+        if os_ == ns_ and not (o and n and _margin_moved(o, n, threshold)):
             continue
         ref = n or o
         old_subject = (o or {}).get("subject")
-        cl.status_changes.append(StatusChange(
+        change = StatusChange(
             ref["_path"], ref.get("id"), ref.get("subject"), os_, ns_, ref.get("unit", ""),
             (o or {}).get("value"), (n or {}).get("value"),
             (o or {}).get("limit"), (n or {}).get("limit"),
             (o or {}).get("margin"), (n or {}).get("margin"),
             ref.get("source", ""), ref.get("message", ""),
-            old_subject if o and n and old_subject != ref.get("subject") else None))
+            old_subject if o and n and old_subject != ref.get("subject") else None)
+        if os_ == ns_:
+            cl.margin_changes.append(MarginChange(change))
+        else:
+            cl.status_changes.append(change)
 
     for row in figure_rows(old_snapshot, new_snapshot, threshold=threshold):
         if row.moved and top_id(row.path) not in absent and top_id(row.path) not in fresh:
