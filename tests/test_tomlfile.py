@@ -8,6 +8,8 @@ from __future__ import annotations
 
 import textwrap
 
+import pytest
+
 from pinlib.core.errors import InputError
 from pinlib.core.tomlfile import line_index, line_of, tomllib
 
@@ -225,3 +227,32 @@ def test_a_byte_order_mark_is_named_as_such(tmp_path, capsys, monkeypatch):
     assert f"{design}:1: the file starts with a byte-order mark (BOM)" in err
     assert "save the file as UTF-8 without a byte-order mark" in err
     assert "Traceback" not in err
+
+
+@pytest.mark.parametrize(("body", "line", "field", "hint"), [
+    # a value with a unit written without its quotes (the parser said only "Expected
+    # newline or end of document after a statement")
+    ('[pins.sda]\nc_in = 6 pF\n', 2, "pins.sda.c_in", 'text goes in quotes: c_in = "6 pF"'),
+    ('[pins.sda]\nv_il = 0.7 VDD\n', 2, "pins.sda.v_il", 'v_il = "0.7 VDD"'),
+    ('[pins.sda]\noff_tolerant = yes\n', 2, "pins.sda.off_tolerant", "true or false"),
+    # a key given twice: at the end of the file the parser named no line at all
+    ('[pins.sda]\nc_in = "6 pF"\nc_in = "7 pF"', 3, "pins.sda.c_in", "also at line 2"),
+    # each [[bus]] entry is a table of its own: only the key set twice in one is named
+    ('[[bus]]\nid = "a"\n[[bus]]\nid = "b"\nid = "c"\n', 5, "bus.id", "also at line 4"),
+    # a table given twice
+    ('[pins.scl]\nx = 1\n[pins.scl]\ny = 2\n', 3, "pins.scl",
+     "[pins.scl] is declared twice (also at line 1)"),
+    # a string not closed, on its line and at the end of the file (no line named)
+    ('title = "x\nid = "y"\n', 1, None, "closing quote"),
+    ('id = "y"\ntitle = "x', 2, None, "closing quote"),
+])
+def test_a_toml_slip_is_named_with_its_line_field_and_fix(tmp_path, body, line, field, hint):
+    from pinlib.core.tomlfile import load
+
+    path = tmp_path / "slip.toml"
+    path.write_text(body, encoding="utf-8")
+    with pytest.raises(InputError) as info:
+        load(path)
+    err = info.value
+    assert (err.line, err.field) == (line, field), str(err)
+    assert err.hint and hint in err.hint, str(err)

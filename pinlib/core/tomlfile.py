@@ -182,8 +182,9 @@ def load(path: str | os.PathLike, *, error=InputError,
     except tomllib.TOMLDecodeError as exc:
         msg = str(exc)
         m = re.search(r"line (\d+)", msg)
-        raise error(M.NOT_TOML.format(detail=msg), file=str(p),
-                    line=int(m.group(1)) if m else None) from None
+        line, field, hint = _toml_advice(msg, text, int(m.group(1)) if m else None)
+        raise error(M.NOT_TOML.format(detail=msg), file=str(p), line=line, field=field,
+                    hint=hint) from None
     except RecursionError:
         raise error(M.NESTED_TOO_DEEP.format(limit=MAX_NESTING), file=str(p),
                     line=_deep_line(text)) from None
@@ -193,6 +194,76 @@ def load(path: str | os.PathLike, *, error=InputError,
                     line=_line_within(line_index(text), deep) or _deep_line(text),
                     field=dotted(deep[:8]) + ("…" if len(deep) > 8 else "")) from None
     return data, text
+
+
+_KEY_VALUE = re.compile(r"^\s*([A-Za-z0-9_.-]+)\s*=\s*(.*?)\s*$")
+_TABLE_HEADER = re.compile(r"^\s*\[(\[)?\s*([A-Za-z0-9_.\- ]+?)\s*\]\]?\s*(?:#.*)?$")
+
+
+def _toml_advice(msg: str, text: str, line: int | None):
+    """What a TOML parser's complaint most likely means, for people: (line, field,
+    hint).  The parser names no key, and for a string or a key it finds wrong only at
+    the end of the file no line either; the common slips are found here: a value with a
+    unit written without quotes, a key or a table given twice, a string not closed."""
+    lines = text.split("\n")
+    here = lines[line - 1] if line and line <= len(lines) else None
+
+    def field_at(key: str, at: int) -> str:
+        h = next((h for ln in reversed(lines[:at - 1]) if (h := _TABLE_HEADER.match(ln))),
+                 None)
+        if h is None or h.group(1):  # top level, or an array of tables: the key alone
+            return key
+        return f"{h.group(2).replace(' ', '')}.{key}"
+
+    if here is not None and msg.startswith(("Expected newline or end of document",
+                                            "Invalid value")):
+        kv = _KEY_VALUE.match(here.split(" #")[0])
+        if kv and kv.group(2) and kv.group(2)[0] not in "\"'[{":
+            key, value = kv.group(1), kv.group(2)
+            if value.lower() in ("yes", "no", "on", "off", "true", "false"):
+                return line, field_at(key, line), "a yes-or-no is written true or false"
+            try:
+                tomllib.loads(f'x = "{value}"')
+            except tomllib.TOMLDecodeError:
+                return line, None, None
+            return line, field_at(key, line), f'text goes in quotes: {key} = "{value}"'
+    if here is not None and msg.startswith("Illegal character '\\n'") and \
+            here.replace('\\"', "").count('"') % 2 == 1:
+        return line, None, "a string is not closed: add its closing quote"
+    if msg.startswith("Cannot declare"):
+        names = re.findall(r"'([^']*)'", msg.split(" twice")[0])
+        want = ".".join(names)
+        first = next((i + 1 for i, ln in enumerate(lines)
+                      if (h := _TABLE_HEADER.match(ln)) and not h.group(1)
+                      and h.group(2).replace(" ", "") == want
+                      and i + 1 != line), None)
+        where = f" (also at line {first})" if first else ""
+        return line, want, f"the table [{want}] is declared twice{where}: merge the two"
+    if msg.startswith("Cannot overwrite a value"):
+        seen: dict[tuple, int] = {}
+        table: tuple = ()
+        for i, ln in enumerate(lines, 1):
+            h = _TABLE_HEADER.match(ln)
+            if h:  # an entry of an array of tables is a table of its own
+                table = tuple(h.group(2).replace(" ", "").split(".")) + (
+                    (i,) if h.group(1) else ())
+                continue
+            kv = _KEY_VALUE.match(ln)
+            if kv:
+                key = table + tuple(kv.group(1).split("."))
+                if key in seen:
+                    name = ".".join(k for k in key if isinstance(k, str))
+                    return i, name, f"{name} is set twice (also at line {seen[key]}): keep one"
+                seen[key] = i
+        return line, None, "a key is set twice in one table: keep one"
+    if msg.startswith("Unterminated string") and line is None:
+        for i, ln in enumerate(lines, 1):
+            body = ln.replace('\\"', "")
+            if body.lstrip().startswith("#"):
+                continue
+            if body.count('"') % 2 == 1 and '"""' not in body:
+                return i, None, "a string is not closed: add its closing quote"
+    return line, None, None
 
 
 def read_regular(path: Path, *, error=InputError, max_bytes: int = MAX_FILE_BYTES) -> bytes:
