@@ -1082,6 +1082,14 @@ def _(env):
     return _fails(lambda e: rec.record_value(lib, "p", "supply.min", "6 V", "rev A"), env)
 
 
+@case("PART_INVALID_ALREADY", M.PART_INVALID_ALREADY.format(problem="unknown unit 'MHzz'"))
+def _(env):
+    env.write("team/p.toml", PART.format(id="p") + '\n[timing]\nf_max = "1 MHzz"\n')
+    lib = load_library([env.tmp / "team"], env=False)
+    return _fails(lambda e: rec.record_value(lib, "p", "sda.leakage", "1 µA", "rev A"),
+                  env)
+
+
 @case("VALUE_WHERE_TABLE")
 def _(env):
     env.write("team/p.toml", PART.format(id="p").replace(

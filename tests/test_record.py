@@ -181,6 +181,27 @@ def test_refused_value_names_field_and_expected(lib_dirs):
     assert err.line == 11  # the line of c_in in the file
 
 
+def test_a_problem_the_file_had_already_is_named_as_its_own(lib_dirs):
+    # invented: f_max mistyped by hand. Recording sda.c_in was refused with "the part
+    # would not validate with this value", as if the new c_in were at fault
+    _, team = lib_dirs
+    path = team / "child.toml"
+    path.write_text(CHILD.replace('f_max = "1 MHz"', 'f_max = "1 MHzz"'), encoding="utf-8")
+    kept = path.read_text(encoding="utf-8")
+    lib = load_library([team])
+    with pytest.raises(LibraryError) as info:
+        record_value(lib, "child", "sda.c_in", "6 pF", "rev C")
+    err = info.value
+    assert "has a problem already" in err.problem and "would not validate" not in str(err)
+    assert err.field == "timing.f_max" and err.line == kept.splitlines().index(
+        'f_max = "1 MHzz"') + 1
+    assert "pins.sda.c_in was not written" in err.hint
+    assert path.read_text(encoding="utf-8") == kept
+    # recording the mistyped value itself mends the file
+    record_value(lib, "child", "timing.f_max", "1 MHz", "rev C")
+    assert load(team).parts["child"].timing.f_max.value == 1e6  # the value just written
+
+
 @pytest.mark.parametrize("value", ["1e300 pF", "4k7", "-3 pF"])
 def test_refused_value_is_quoted_as_typed(lib_dirs, value):
     # "1e300 pF" was quoted back as "1e288 F", "4k7" as "4.7 kF", "-3 pF" as "-3 pF"

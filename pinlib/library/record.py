@@ -213,9 +213,11 @@ def _validate(library: loader.Library, part_id: str, path: Path, text: str,
     except loader._Many as many:
         errors = many.errors
         mine = [e for e in errors if field and _within(e.field, field)] or errors
-        raise _refusal(mine[0], path, field, old_text) from None
+        raise _refusal(mine[0], path, field, old_text,
+                       _as_it_stands(library, part_id, path, old_text)) from None
     except LibraryError as err:
-        raise _refusal(err, path, field, old_text) from None
+        raise _refusal(err, path, field, old_text,
+                       _as_it_stands(library, part_id, path, old_text)) from None
     # A part that extends this one and loaded before must still load.
     for child_id, _pf in files.items():
         if child_id == part_id or child_id not in library.parts:
@@ -248,10 +250,36 @@ def _within(err_field: str | None, field: str) -> bool:
     return err_field == field or (err_field or "").startswith(field + ".")
 
 
-def _refusal(err: PinlibError, path: Path, field: str | None, old_text: str | None):
-    """The error for a value that does not validate, located in the file as it stands."""
+def _as_it_stands(library, part_id: str, path: Path, old_text: str | None):
+    """The first problem of the part with its file as it stands (before the value is
+    written), or None when it loads or there is no old text."""
+    if old_text is None:
+        return None
+    files = dict(library.files)
+    files[part_id] = loader.PartFile(Path(path), tomllib.loads(old_text), old_text, False)
+    try:
+        loader._resolve(part_id, files)
+    except loader._Many as many:
+        return many.errors[0]
+    except LibraryError as err:
+        return err
+    return None
+
+
+def _refusal(err: PinlibError, path: Path, field: str | None, old_text: str | None,
+             before: PinlibError | None = None):
+    """The error for a value that does not validate, located in the file as it stands.
+    ``before``: the part's problem before the value was written; a problem elsewhere
+    that was there already is named as the file's own, not the value's."""
     if field is None:
         return err
+    if before is not None and not _within(err.field, field) and \
+            (before.file, before.field, before.problem) == (err.file, err.field, err.problem):
+        return LibraryError(M.PART_INVALID_ALREADY.format(problem=err.problem),
+                            file=err.file, line=err.line, field=err.field, value=err.value,
+                            expected=err.expected,
+                            hint=f"{field} was not written: correct this first, then "
+                                 "record again")
     line = None if old_text is None else line_of(line_index(old_text), tuple(field.split(".")))
     if _within(err.field, field):
         # the value, or a part of it the command wrote (its --typ: "pins.sda.c_in.typ")
