@@ -245,6 +245,24 @@ def test_new_then_record(lib, capsys):
     assert values["timing.f_max"]["origin"] == "flash"
 
 
+def test_record_says_what_it_replaces(lib, capsys):
+    # a measured value written over by a datasheet one, and a typical value dropped by a
+    # record without --typ, went without a word
+    run(capsys, "parts", "new", "flash-c", "--from", "flash", "--into", "team")
+    code, out, _ = run(capsys, "parts", "record", "flash-c", "sclk.c_in", "5 pF",
+                       "--source", "bench 2026-11", "--basis", "measured", "--typ", "3 pF",
+                       "--library", "team")
+    assert code == 0 and "replaces" in out and "inherited from flash" in out
+    code, out, _ = run(capsys, "parts", "record", "flash-c", "sclk.c_in", "6 pF",
+                       "--source", "rev B, table 6", "--library", "team")
+    assert code == 0
+    assert "replaces 5 pF, typ 3 pF (measured: bench 2026-11)" in " ".join(out.split())
+    assert "typ is dropped" in out
+    code, out, _ = run(capsys, "parts", "record", "flash-c", "sclk.c_in", "6 pF",
+                       "--source", "rev B, table 6", "--typ", "4 pF", "--library", "team")
+    assert code == 0 and "typ is dropped" not in out
+
+
 def test_new_fits_its_lines_to_80_columns_and_the_next_command_still_pastes(
         lib, capsys, monkeypatch):
     # a 50-character id in a folder not yet a library: the "next:" command ran to 125

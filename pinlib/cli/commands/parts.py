@@ -517,14 +517,46 @@ def _run_record(args) -> int:
     from pinlib.library.record import record_value
 
     lib = _load(args)
+    keys, _ = resolve_path(args.field)
+    was = _value_before(lib, args.id, ".".join(keys), typ_given=args.typ is not None)
     path = record_value(lib, args.id, args.field, args.value, args.source,
                         basis=args.basis, typ=args.typ)
-    keys, _ = resolve_path(args.field)
     typ = f", typ {args.typ}" if args.typ else ""
     print(f"recorded {'.'.join(keys)} = {args.value}{typ} ({args.basis}: {args.source}) "
           f"in {_rel(path)}")
+    if was is not None:
+        # what the record replaces, so that a measured value or a typical one written
+        # over is said, not lost in silence
+        print(fitted("  " + was))
     _warn_implausible(_load(args), args.id, ".".join(keys))
     return 0
+
+
+def _value_before(lib, pid: str, field: str, typ_given: bool = False) -> str | None:
+    """The value a record of ``field`` replaces, as a line: its text, typical value,
+    basis and source, and the part it was inherited from; None when there is none."""
+    from pinlib.core.errors import PinlibError
+
+    try:
+        entry = next((v for v in _show_data(lib, pid)["values"]
+                      if v["field"] == field and not v["derived"]), None)
+    except PinlibError:
+        return None  # the record itself names what is wrong
+    if entry is None:
+        return None
+    typ = entry["typ"]
+    if isinstance(typ, (int, float)):
+        from pinlib.core.quantity import format_si
+
+        typ = format_si(typ, entry["unit"])
+    typ = f", typ {typ}" if typ else ""
+    source = f": {entry['source']}" if entry["source"] else ""
+    line = f"replaces {entry['text']}{typ} ({entry['basis']}{source})"
+    if entry["inherited"]:
+        line += f", inherited from {entry['origin']}"
+    elif entry["typ"] and not typ_given:
+        line += "; its typ is dropped (give --typ to keep one)"
+    return line
 
 
 def _run_import(args) -> int:
