@@ -156,6 +156,19 @@ def test_record_warns_on_an_implausible_value(team, capsys):
     assert "warning" not in capsys.readouterr().err
 
 
+def test_record_warns_when_a_cable_s_three_values_come_to_disagree(team, capsys):
+    # invented: a cable class of 50 pF/m, 5 ns/m, 100 Ω. A record of 80 pF/m makes
+    # Z0·C' 8 ns/m against 5 ns/m; the warning, on the table 'line', was filtered out
+    # as another field's, and only 'parts check' told of it
+    _cable(team, "c4", 'capacitance = "0.5 pF/cm"\ndelay = "5 ns/m"\nimpedance = "100 Ω"')
+    assert main(["parts", "record", "c4", "line.capacitance", "80 pF/m", "--source", "x",
+                 "--library", str(team)]) == 0
+    err = " ".join(capsys.readouterr().err.split())
+    assert "pinlib: warning:" in err and "capacitance, delay and impedance disagree" in err
+    # derived: 100 Ω x 80 pF/m = 8 ns/m against 5 ns/m, +60 %
+    assert "8 ns/m against the delay 5 ns/m (+60%)" in err
+
+
 def test_check_warns_about_the_parts_it_places(team, tmp_path, capsys):
     (team / "odd.toml").write_text(TARGET.format(c_in="8 pF", v_il="-0.3 V"), encoding="utf-8")
     design = tmp_path / "d.toml"

@@ -564,10 +564,17 @@ def _run_import(args) -> int:
 
 
 def _warn_implausible(lib, pid, field=None) -> list:
-    """Print a warning for each implausible value of the part (only ``field`` if given)."""
+    """Print a warning for each implausible value of the part (only those of ``field``
+    if given: the value, its typical value, and a rule over the table holding it, such
+    as a cable's capacitance, delay and impedance that disagree)."""
     from pinlib.library.plausible import part_warnings
 
-    found = [w for w in part_warnings(lib.get(pid), lib) if field is None or w.field == field]
+    def about(w) -> bool:
+        f = w.field or ""
+        return field is None or f == field or f.startswith(field + ".") or (
+            bool(f) and field.startswith(f + "."))
+
+    found = [w for w in part_warnings(lib.get(pid), lib) if about(w)]
     for w in found:
         _warn("pinlib: warning: " + w.message)
     return found
