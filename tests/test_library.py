@@ -275,6 +275,18 @@ def test_self_extension_is_a_cycle(builtin, tmp_path):
     assert err.problem == "an extends cycle"
 
 
+def test_an_override_that_extends_its_own_id_says_how_to_extend_the_class(builtin,
+                                                                          tmp_path):
+    # invented: a team file with the built-in id "base" meant to change one value of it
+    # by extending "base": a cycle, and the message said only "base -> base"
+    team = tmp_path / "team"
+    write(team, "base.toml", part("base", "base", '[pins.sda]\nc_in = "6 pF"\n'))
+    (err,) = [e for e in load_library([team]).problems if e.problem == "an extends cycle"]
+    assert 'id = "base-team"' in err.hint and "extends the class 'base'" in err.hint
+    write(team, "base.toml", part("base-team", "base", '[pins.sda]\nc_in = "6 pF"\n'))
+    assert load_library([team]).parts["base-team"].pins["sda"].c_in.value == 6e-12
+
+
 def test_missing_parent(builtin, tmp_path):
     team = tmp_path / "team"
     child = write(team, "c.toml", part("c", "bas"))

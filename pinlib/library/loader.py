@@ -568,10 +568,16 @@ def _merged_raw(pid: str, files: dict[str, PartFile], stack: list[str]):
                                line=pf.line(("extends",)), field="extends", value=parent)
         if parent in chain:
             cycle = " -> ".join(chain + [parent])
+            hint = f"{cycle}; files: " + ", ".join(
+                str(files[p].path) for p in chain if p in files)
+            if parent == chain[-1]:
+                # a team file of a built-in id that extends "itself", meaning the built-in
+                # class it overrides: that class is out of the library it stands in
+                hint += (f"; a part cannot extend its own id: give this file an id of its "
+                         f"own (id = \"{parent}-team\"), which then extends the class "
+                         f"'{parent}', and place that id")
             raise LibraryError(M.EXTENDS_CYCLE, file=str(pf.path), line=pf.line(("extends",)),
-                               field="extends", value=parent,
-                               hint=f"{cycle}; files: " + ", ".join(
-                                   str(files[p].path) for p in chain if p in files))
+                               field="extends", value=parent, hint=hint)
         if parent not in files:
             raise LibraryError(M.EXTENDS_UNKNOWN, file=str(pf.path),
                                line=pf.line(("extends",)), field="extends", value=parent,
