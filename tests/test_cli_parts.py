@@ -455,6 +455,14 @@ def test_check_missing_folder(lib, capsys):
     assert code == 2 and "not a folder" in err
 
 
+def test_new_into_a_file_says_to_name_its_folder(lib, capsys):
+    # "--into team/eeprom.toml" (the file, not its folder) said only "not a folder"
+    code, _, err = run(capsys, "parts", "new", "x9", "--from", "base", "--into",
+                       "team/eeprom.toml")
+    err = " ".join(err.split())
+    assert code == 2 and "not a folder" in err and "not a file in it (e.g. team)" in err
+
+
 # --- schema ------------------------------------------------------------------------------
 
 def test_schema_stdout_and_file(lib, capsys, tmp_path):

@@ -59,7 +59,9 @@ def team_folder(into_folder, why: str) -> Path:
     folder = Path(into_folder)
     _refuse_builtin(folder, why, "name a team library folder with --into")
     if folder.exists() and not folder.is_dir():
-        raise WriteError(M.NOT_A_FOLDER, file=str(folder))
+        raise WriteError(M.NOT_A_FOLDER, file=str(folder),
+                         expected="the team library folder the part file goes in",
+                         hint=f"name the folder, not a file in it (e.g. {folder.parent})")
     try:
         folder.mkdir(parents=True, exist_ok=True)
     except OSError as exc:
