@@ -708,6 +708,24 @@ def test_swap_write_changes_only_the_part(board, capsys):
     assert load_design(board).device("U4")[1].part_id == "eeprom-hicap"
 
 
+def test_swap_write_of_a_part_only_library_option_holds_says_so(board, capsys):
+    # the design names no library; eeprom-hicap came from --library team. After --write
+    # the design no longer loaded without that option, and nothing said so
+    bare = board.with_name("bare-board.toml")
+    bare.write_text(board.read_text(encoding="utf-8").replace('library = ["team"]\n', ""),
+                    encoding="utf-8")
+    team = str(board.parent / "team")
+    assert main(["swap", str(bare), "U4=eeprom-hicap", "--write", "--library", team]) == 1
+    err = " ".join(capsys.readouterr().err.split())
+    assert f"note: eeprom-hicap comes from {team} (--library)" in err
+    assert main(["swap", str(bare), "--part", "eeprom-hicap=eeprom-i2c", "--write",
+                 "--library", team]) in (0, 1)
+    assert "note:" not in capsys.readouterr().err  # a built-in part needs no folder
+    # a design whose library line names the folder needs no note
+    assert main(["swap", str(board), "U4=eeprom-hicap", "--write", "--library", team]) == 1
+    assert "note:" not in capsys.readouterr().err
+
+
 def test_swap_write_in_segments_and_on_every_bus(board, capsys):
     seg = board.with_name("segment-board.toml")
     old = seg.read_text(encoding="utf-8")

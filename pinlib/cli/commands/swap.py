@@ -182,6 +182,8 @@ def run(args) -> int:
     changes = compare(old_snap, new_snap, threshold=threshold)
     rows = figure_rows(old_snap, new_snap, threshold=threshold)
     written = _write(design, swaps) if args.write else False
+    if written:
+        _note_option_folders(design, swaps.values(), args.library)
     swap_rows = _swap_rows(design, swaps)
 
     if args.json:
@@ -266,6 +268,47 @@ def _write(design, swaps: dict) -> bool:
             return False
         atomic_write(design.path, text)
         return True
+
+
+def _note_option_folders(design, part_ids, folders) -> None:
+    """After a write: a note for each part written into the design that only a
+    ``--library`` folder holds (not the design's own ``library`` line, PINLIB_LIBRARY or
+    the built-in library), since the design no longer loads without that option."""
+    from pathlib import Path
+
+    from pinlib.core.tomlfile import tomllib
+    from pinlib.library.loader import BUILTIN_DIR, library_folders
+    from pinlib.present.terminal import fitted
+
+    def inside(path: Path, folder: Path) -> bool:
+        try:
+            path.relative_to(folder)
+        except ValueError:
+            return False
+        return True
+
+    base = Path(design.path).resolve().parent
+    try:
+        own = tomllib.loads(design.text).get("library") or []
+    except tomllib.TOMLDecodeError:
+        own = []
+    known = [Path(BUILTIN_DIR).resolve(), *(f.resolve() for f in library_folders(())),
+             *((base / str(f)).resolve() for f in own if isinstance(f, str))]
+    given = [Path(f) for f in folders]
+    lib = design.library
+    for pid in dict.fromkeys(part_ids):
+        if pid not in lib.files:
+            continue
+        path = Path(lib.path_of(pid)).resolve()
+        if any(inside(path, k) for k in known):
+            continue
+        folder = next((f for f in given if inside(path, f.resolve())), None)
+        if folder is None:
+            continue
+        print(fitted(f"note: {pid} comes from {folder} (--library), which the library line "
+                     f"of {design.path} does not name: add it there, or give --library "
+                     f"{folder} to every command that reads the design", sys.stderr),
+              file=sys.stderr)
 
 
 def _swap_rows(design, swaps: dict) -> list[dict]:
@@ -365,6 +408,8 @@ def _run_many(args) -> int:
                 s.written = _write(s.design, s.swaps)
             except PinlibError as err:
                 s.status, s.error = "error", err.message
+            if s.written:
+                _note_option_folders(s.design, s.swaps.values(), args.library)
         if s.error is not None:
             from pinlib.present.terminal import fitted
 
