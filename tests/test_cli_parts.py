@@ -180,6 +180,20 @@ def test_show_values_with_provenance_and_origin(lib, capsys):
     assert "3.6 V" in rows["supply.max"] and "1.7 V" in rows["supply.min"]
 
 
+def test_show_head_fits_80_columns(lib, capsys, monkeypatch, tmp_path):
+    # a team part overriding a built-in one whose file lies deep: the line naming the
+    # overridden file ran to 99 columns and more, unwrapped
+    monkeypatch.setenv("COLUMNS", "80")
+    deep = tmp_path / "built-in-library-folder" / "generic-classes"  # shown relative
+    deep.mkdir(parents=True)
+    (deep / "base.toml").write_text(BASE, encoding="utf-8")
+    monkeypatch.setattr(loader, "BUILTIN_DIR", deep)
+    (tmp_path / "team" / "base.toml").write_text(BASE, encoding="utf-8")
+    code, out, _ = run(capsys, "parts", "show", "base", "--library", "team")
+    assert code == 0 and "overrides the built-in" in out
+    assert max(len(ln) for ln in out.splitlines()) <= 80, out
+
+
 def test_show_json(lib, capsys):
     code, out, _ = run(capsys, "parts", "show", "eeprom", "--library", "team", "--json")
     data = json.loads(out)

@@ -423,17 +423,18 @@ def _run_show(args) -> int:
         print(json.dumps(data, indent=2, ensure_ascii=False))
         return 0
     cols = width()
-    print(f"{data['id']}: {data['title']}")
+    print("\n".join(wrap(f"{data['id']}: {data['title']}", cols)))
     facts = [f"category {data['category']}"]
     if data["abstract"]:
         facts.append("abstract class (extend it; not placed on a board)")
     facts.append("built-in" if data["builtin"] else "team part")
     if data["overrides"]:
         facts.append(f"overrides the built-in {_rel(data['overrides'])}")
-    print("  " + "; ".join(facts))
-    print("  file: " + _rel(data["file"]))
+    print("\n".join(wrap("; ".join(facts), cols, "  ")))
+    print("\n".join(wrap("file: " + _rel(data["file"]), cols, "  ")))
     if len(data["chain"]) > 1:
-        print("  extends: " + " <- ".join(c["id"] for c in data["chain"]))
+        print("\n".join(wrap("extends: " + " <- ".join(c["id"] for c in data["chain"]),
+                             cols, "  ")))
     prov = data["provenance"]
     bits = [prov["basis"]] + [b for b in (prov["source"], prov["recorded"] and
                                           f"recorded {prov['recorded']}", prov["by"]) if b]
