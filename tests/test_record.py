@@ -181,6 +181,19 @@ def test_refused_value_names_field_and_expected(lib_dirs):
     assert err.line == 11  # the line of c_in in the file
 
 
+def test_record_into_an_id_two_team_files_share_is_refused(lib_dirs):
+    # invented: a copy of child.toml in a subfolder. The record went into whichever file
+    # the walk read first, and the command then failed with exit 2 after writing
+    _, team = lib_dirs
+    (team / "copy").mkdir()
+    (team / "copy" / "child.toml").write_text(CHILD, encoding="utf-8")
+    lib = load_library([team])
+    with pytest.raises(LibraryError, match="two team parts share one id"):
+        record_value(lib, "child", "sda.c_in", "6 pF", "rev C")
+    assert (team / "child.toml").read_text(encoding="utf-8") == CHILD
+    assert (team / "copy" / "child.toml").read_text(encoding="utf-8") == CHILD
+
+
 def test_a_problem_the_file_had_already_is_named_as_its_own(lib_dirs):
     # invented: f_max mistyped by hand. Recording sda.c_in was refused with "the part
     # would not validate with this value", as if the new c_in were at fault

@@ -443,6 +443,8 @@ def record_value(library: loader.Library, part_id: str, field: str, value_text: 
         library.get(part_id)  # raises with the closest ids
     pf = library.files[part_id]
     path = pf.path
+    if pf.others:  # two team files state this id: which one to write is not known
+        raise pf.others[0]
     if pf.builtin or _inside_builtin(path):
         raise LibraryError(M.BUILTIN_NOT_WRITTEN, file=str(path),
                            field="id", value=part_id,
