@@ -66,8 +66,8 @@ def add_parser(sub) -> None:
                    help="write the result beside each design as <design>.result.json; later "
                         "runs list what changed against it")
     p.add_argument("--threshold", metavar="PCT", type=threshold_type, default=None,
-                   help="list figures that moved more than this against the saved result "
-                        "(default 5%%)")
+                   help="list figures that moved more than this against the saved result, "
+                        "and margins that moved more than this many points (default 5%%)")
     p.add_argument("--corners", action="store_true",
                    help="also find each check's worst corner of the tolerances "
                         "(I2C, SMBus, SPI, GPIO)")

@@ -76,8 +76,8 @@ def add_parser(sub) -> None:
     p.add_argument("--library", metavar="DIR", action="append", default=[],
                    help="a team library folder (repeatable; takes precedence over the design's)")
     p.add_argument("--threshold", metavar="PCT", type=threshold_type, default=None,
-                   help="list figures that moved more than this against the saved snapshot "
-                        "(default 5%%)")
+                   help="list figures that moved more than this against the saved snapshot, "
+                        "and margins that moved more than this many points (default 5%%)")
     p.add_argument("--monte-carlo", metavar="N", type=_positive_int, default=None,
                    dest="monte_carlo",
                    help="also run N Monte Carlo boards and show a histogram per check")

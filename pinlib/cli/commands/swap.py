@@ -83,11 +83,12 @@ def add_parser(sub) -> None:
     p.add_argument("--library", metavar="DIR", action="append", default=[],
                    help="a team library folder (repeatable; takes precedence over the design's)")
     p.add_argument("--threshold", metavar="PCT", type=threshold_type, default=None,
-                   help="list figures that move by more than this (default 5%%)")
+                   help="list figures that move by more than this, and margins that move "
+                        "by more than this many points (default 5%%)")
     p.add_argument("--detail", action="store_true",
                    help="print every figure before and after (the default prints what "
-                        "changed: checks whose status changed, figures that moved, the part "
-                        "values behind them)")
+                        "changed: checks whose status changed, margins and figures that moved, "
+                        "the part values behind them)")
     p.set_defaults(run=run)
 
 
