@@ -277,6 +277,18 @@ def test_record_says_what_it_replaces(lib, capsys):
     assert code == 0 and "typ is dropped" not in out
 
 
+def test_record_fits_80_columns_and_shows_what_it_wrote(lib, capsys, monkeypatch):
+    # the 'recorded' line ran past 80 columns, and showed the value with the spaces
+    # around it that the file does not keep
+    monkeypatch.setenv("COLUMNS", "80")
+    run(capsys, "parts", "new", "flash-d", "--from", "flash", "--into", "team")
+    code, out, _ = run(capsys, "parts", "record", "flash-d", "sclk.c_in", " 5 pF ",
+                       "--source", "datasheet revision B of 2026-03, table 6, Ci max",
+                       "--library", "team")
+    assert code == 0 and max(len(ln) for ln in out.splitlines()) <= 80, out
+    assert "recorded pins.sclk.c_in = 5 pF (datasheet:" in out
+
+
 def test_new_fits_its_lines_to_80_columns_and_the_next_command_still_pastes(
         lib, capsys, monkeypatch):
     # a 50-character id in a folder not yet a library: the "next:" command ran to 125

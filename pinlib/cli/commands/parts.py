@@ -522,9 +522,10 @@ def _run_record(args) -> int:
     was = _value_before(lib, args.id, ".".join(keys), typ_given=args.typ is not None)
     path = record_value(lib, args.id, args.field, args.value, args.source,
                         basis=args.basis, typ=args.typ)
-    typ = f", typ {args.typ}" if args.typ else ""
-    print(f"recorded {'.'.join(keys)} = {args.value}{typ} ({args.basis}: {args.source}) "
-          f"in {_rel(path)}")
+    # as written to the file: stripped, and within the width
+    typ = f", typ {args.typ.strip()}" if args.typ else ""
+    print(fitted(f"recorded {'.'.join(keys)} = {args.value.strip()}{typ} ({args.basis}: "
+                 f"{args.source.strip()}) in {_rel(path)}"))
     if was is not None:
         # what the record replaces, so that a measured value or a typical one written
         # over is said, not lost in silence
