@@ -35,11 +35,12 @@ PINS = ("[Pin]  signal_name  model_name\n"
 
 def test_import_shows_the_guess_and_writes_nothing(tmp_path, capsys, monkeypatch):
     monkeypatch.setenv("COLUMNS", "80")
+    monkeypatch.chdir(tmp_path)  # short paths: the test's folder name is long
     ibs = tmp_path / "invented.ibs"
     ibs.write_text(ibis_text(pins=PINS, edges=""))
     parts = tmp_path / "parts"
-    code = main(["parts", "import", str(ibs), "--component", "DEMO-IO", "--id", "demo-g",
-                 "--into", str(parts)])
+    code = main(["parts", "import", "invented.ibs", "--component", "DEMO-IO", "--id",
+                 "demo-g", "--into", "parts"])
     out = capsys.readouterr().out
     assert code == 0
     assert "SPI_SCK" in out and "spi-sclk" in out and "(no guess)" in out
@@ -49,9 +50,9 @@ def test_import_shows_the_guess_and_writes_nothing(tmp_path, capsys, monkeypatch
     lines = out.splitlines()
     start = next(i for i, ln in enumerate(lines) if ln.lstrip().startswith("pinlib"))
     command = lines[start:]
-    assert all(len(ln) <= 80 for ln in command), command  # the tmp path fits a line
+    assert all(len(ln) <= 80 for ln in command), command
     argv = shlex.split(" ".join(command).replace(" \\ ", " "))[1:]
-    assert argv[argv.index("--id") + 1] == "demo-g" and str(parts) in argv
+    assert argv[argv.index("--id") + 1] == "demo-g" and "parts" in argv
     assert main(argv) == 0
     assert main(["parts", "import", str(ibs), "--component", "DEMO-IO", "--id", "demo-y",
                  "--into", str(parts), "--yes"]) == 0
@@ -60,3 +61,16 @@ def test_import_shows_the_guess_and_writes_nothing(tmp_path, capsys, monkeypatch
     b = (parts / "demo-y.toml").read_text().split("\n", 4)[4]
     assert a.replace("demo-g", "demo-y") == b
     assert '[pins.sclk]' in a and '[pins.cs]' in a and "irq" not in a.lower()
+
+
+def test_import_notes_fit_80_columns(tmp_path, capsys, monkeypatch):
+    # "note: parts is not a library folder yet: pass --library ... or add it to
+    # PINLIB_LIBRARY" was one line past 80 columns, and so were the fit's warnings
+    monkeypatch.setenv("COLUMNS", "80")
+    monkeypatch.chdir(tmp_path)  # short paths: the test's folder name is long
+    (tmp_path / "invented.ibs").write_text(ibis_text(pins=PINS, edges=""))
+    assert main(["parts", "import", "invented.ibs", "--component", "DEMO-IO", "--id",
+                 "demo-n", "--into", "parts", "--yes"]) == 0
+    out, err = capsys.readouterr()
+    assert "not a library folder yet" in err
+    assert max(len(ln) for ln in (out + err).splitlines()) <= 80, out + err

@@ -134,11 +134,13 @@ def run_import(args, load_library, default_folder) -> int:
     path = import_part(lib, ibis, args.component, pins, args.part_id, folder,
                        category=args.category, extends=args.extends, i_ol=i_ol,
                        outputs=output_corners, warnings=found)
+    from pinlib.present.terminal import fitted
+
     for text in found:
-        print(f"warning: {text}", file=sys.stderr)
-    print(f"created {path} from [Component] {args.component} of {args.file}")
+        print(fitted(f"warning: {text}", sys.stderr), file=sys.stderr)
+    print(fitted(f"created {path} from [Component] {args.component} of {args.file}"))
     known = [f.resolve() for f in lib.folders]
     if folder.resolve() not in known:
-        print(f"note: {folder} is not a library folder yet: pass --library {folder} or add "
-              "it to PINLIB_LIBRARY", file=sys.stderr)
+        print(fitted(f"note: {folder} is not a library folder yet: pass --library {folder} "
+                     "or add it to PINLIB_LIBRARY", sys.stderr), file=sys.stderr)
     return 0
