@@ -473,6 +473,18 @@ def test_status_changes_include_new_and_removed_checks():
         by_id["rise-time"].format()
 
 
+def test_a_status_change_whose_value_stayed_shows_it_once():
+    # "Device speed U2: pass → fail (400 kHz → 400 kHz, limit 400 kHz → 100 kHz)":
+    # only the limit moved (invented check values)
+    chk = {"id": "device-speed", "status": "pass", "value": 400e3, "limit": 400e3,
+           "unit": "Hz", "margin": 0.0, "source": "src", "message": "", "subject": "U2"}
+    old = _result({}, checks=[chk])
+    new = _result({}, status="fail", checks=[dict(chk, status="fail", limit=100e3,
+                                                  margin=-3.0)])
+    (c,) = compare(old, new).status_changes
+    assert "(400 kHz, limit 400 kHz → 100 kHz)" in c.format(), c.format()
+
+
 def test_check_whose_worst_case_moves_to_another_device_is_the_same_check():
     chk = {"id": "v-oh", "status": "pass", "value": 3.0, "limit": 2.0, "unit": "V",
            "margin": 0.5, "source": "src", "message": "", "subject": "SDA U1"}

@@ -74,7 +74,11 @@ class StatusChange:
         """The check's value (before → after, or the one side present) and its limit, as
         :meth:`format` shows them in parentheses: ``117 mV → 420 mV, limit 940 mV``."""
         vals = []
-        if self.old is not None and self.new is not None:
+        if self.old is not None and self.new is not None and \
+                format_figure(self.old_value, self.unit) == format_figure(self.new_value,
+                                                                          self.unit):
+            vals.append(format_figure(self.new_value, self.unit))  # the limit moved
+        elif self.old is not None and self.new is not None:
             vals.append(f"{format_figure(self.old_value, self.unit)} {_ARROW} "
                         f"{format_figure(self.new_value, self.unit)}")
         elif self.new is not None:
@@ -113,11 +117,8 @@ class MarginChange:
         where = f"{c.path} {check_label(str(c.check))}" + (f" {c.subject}" if c.subject else "")
         if c.old_subject:
             where += f" (was {c.old_subject})"
-        values = c.values_text()
-        if c.old_value == c.new_value:  # the limit moved: the value once
-            values = values.replace(f"{format_figure(c.old_value, c.unit)} {_ARROW} ", "", 1)
         return (f"{where}: margin {percent_text(c.old_margin)} {_ARROW} "
-                f"{percent_text(c.new_margin)} ({values})")
+                f"{percent_text(c.new_margin)} ({c.values_text()})")
 
     def to_json(self) -> dict:
         """A status change's keys, with the one ``status`` in place of ``old``/``new``."""
