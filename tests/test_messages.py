@@ -1090,6 +1090,15 @@ def _(env):
                   env)
 
 
+@case("PART_FILE_TOO_LARGE", lambda: M.PART_FILE_TOO_LARGE.split("{")[0])
+def _(env):
+    lib = env.team("p")
+    env.monkeypatch.setattr(loader, "MAX_PART_BYTES", 1024)
+    err = _fails(lambda e: rec.record_value(lib, "p", "sda.leakage", "1 µA", "x" * 2000),
+                 env)
+    return err.message
+
+
 @case("VALUE_WHERE_TABLE")
 def _(env):
     env.write("team/p.toml", PART.format(id="p").replace(

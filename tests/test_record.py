@@ -181,6 +181,18 @@ def test_refused_value_names_field_and_expected(lib_dirs):
     assert err.line == 11  # the line of c_in in the file
 
 
+def test_a_record_that_would_make_the_file_too_large_to_read_is_refused(lib_dirs,
+                                                                        monkeypatch):
+    # a source pasted whole (a page of a datasheet) grew the file past the size the
+    # library reads: written, the part was then left out of the library ("file too large")
+    _, team = lib_dirs
+    monkeypatch.setattr(loader, "MAX_PART_BYTES", 4096)  # the limit, made small
+    with pytest.raises(LibraryError, match="more than the 4,096 the library reads") as info:
+        record_value(load(team), "child", "sda.c_in", "6 pF", "x" * 5000)
+    assert info.value.field == "pins.sda.c_in" and "shorten" in info.value.hint
+    assert (team / "child.toml").read_text(encoding="utf-8") == CHILD
+
+
 def test_record_into_an_id_two_team_files_share_is_refused(lib_dirs):
     # invented: a copy of child.toml in a subfolder. The record went into whichever file
     # the walk read first, and the command then failed with exit 2 after writing

@@ -175,6 +175,8 @@ WOULD_BREAK_CHILD = "the value would break '{child}', which extends this part"
 VALUE_REFUSED = "the value is refused: {problem}"
 PART_WOULD_NOT_VALIDATE = "the part would not validate with this value"
 PART_INVALID_ALREADY = "the part file has a problem already: {problem}"
+PART_FILE_TOO_LARGE = ("the part file would hold {size:,} bytes, more than the {limit:,} "
+                       "the library reads")
 VALUE_WHERE_TABLE = "the file has a value where a table belongs"
 VALUE_NEEDED = "a value is needed"
 SOURCE_NEEDED = "every recorded value needs its source"

@@ -206,7 +206,14 @@ def write_new_part(library: loader.Library, new_id: str, target: Path, text: str
 
 def _validate(library: loader.Library, part_id: str, path: Path, text: str,
               field: str | None = None, old_text: str | None = None):
-    """Validate ``part_id`` as if its file held ``text``; raise the first problem."""
+    """Validate ``part_id`` as if its file held ``text``; raise the first problem.  A text
+    larger than the library reads is refused (written, the part would be left out)."""
+    size = len(text.encode("utf-8"))
+    if size > loader.MAX_PART_BYTES:
+        raise LibraryError(M.PART_FILE_TOO_LARGE.format(size=size, limit=loader.MAX_PART_BYTES),
+                           file=str(path), field=field,
+                           hint="a source names a document, its revision and a table or "
+                                "page: shorten the text given")
     raw = tomllib.loads(text)
     files = dict(library.files)
     files[part_id] = loader.PartFile(Path(path), raw, text, False)
