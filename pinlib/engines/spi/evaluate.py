@@ -30,6 +30,9 @@ _TERM_TEXT = {
                   "available hold {avail} against the controller's t_hold {req}"),
     "cs-setup": ("CS setup at {ref}", "CS leads the first edge by {avail} against "
                                       "t_cs_setup {req}"),
+    "cipo-first-bit": ("first CIPO bit at the controller from {ref} (driven when CS "
+                       "asserts)", "CS to the first sampling edge leaves {avail} against "
+                                   "the controller's t_setup {req}"),
 }
 
 #: The bus figures that hold the lowest margin of a term id over the peripherals.
@@ -54,7 +57,8 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
     -------
     BusResult
         One line result per routed signal; checks ``copi-setup``, ``copi-hold``,
-        ``cipo-setup``, ``cipo-hold``, ``cs-setup`` (per peripheral) and ``f-max``
+        ``cipo-setup``, ``cipo-hold``, ``cs-setup``, ``cipo-first-bit`` (CPHA 0, a
+        peripheral that records ``t_cs_valid``; per peripheral) and ``f-max``
         (per part); figures ``max_clock`` [Hz], ``cipo_setup_margin``,
         ``copi_setup_margin`` and ``copi_hold_margin`` (the worst over peripherals,
         available minus required time; None when not computed) [s].
