@@ -28,7 +28,7 @@ from pinlib.present.visible import RESET
 from pinlib.present.visible import STATUS_SGR as _SGR
 
 __all__ = ["DEFAULT_WIDTH", "MIN_WIDTH", "columns", "width", "use_colour", "status_word", "wrap",
-           "fitted", "shell_word", "shown_path"]
+           "fitted", "shell_word", "shown_path", "write_json"]
 
 #: Columns when standard output is not a terminal and COLUMNS is not set.
 DEFAULT_WIDTH = 80
@@ -147,3 +147,13 @@ def shown_path(path) -> str:
     except ValueError:  # another drive (Windows)
         return str(path)
     return str(path) if rel.startswith("..") else rel
+
+
+def write_json(doc) -> None:
+    """``doc`` on standard output as indented JSON and a line break, in one write
+    (``json.dump`` writes a chunk per token: a stream that looks at each write, as the
+    command line's :class:`~pinlib.present.visible.VisibleStream`, took four times as
+    long over a 5 MB document)."""
+    import json
+
+    sys.stdout.write(json.dumps(doc, indent=2, ensure_ascii=False) + "\n")
