@@ -436,7 +436,13 @@ def test_a_figure_without_a_number_says_why_under_the_table():
     d = load_design(Path(__file__).parent / "data" / "spi-cipo-never-high.toml")
     r = cand.rank_candidates(d, "U2")
     text = r.format_text(width=80)
-    assert "— f(max): no clock satisfies CIPO setup U2 (" in text.replace("\n  ", " ")
+    flat = text.replace("\n  ", " ")
+    assert "— f(max): no clock satisfies CIPO setup U2 (" in flat
+    # and the worst margin that does not exist says why too, first (its column is first)
+    assert "— worst: CIPO never crosses the receiving input's threshold" in flat
+    assert flat.index("— worst:") < flat.index("— f(max):")
+    assert all(c.worst_check["reason"].startswith("CIPO never crosses")
+               for c in r.candidates)
     doc = r.to_json()
     cells = [c["figures"]["flash"]["max_clock"] for c in doc["candidates"]]
     assert cells and all(c["value"] is None and "no clock satisfies" in c["reason"]

@@ -279,7 +279,13 @@ class Ranking:
             if len(shown) < len(self.candidates):
                 lines.append(f"… {len(self.candidates) - len(shown)} more (--top N)")
             lines.append("* the part in the design now")
-            for (label, reason), parts in blanks.items():
+            # each "—" without a number, in the order of the columns: why
+            worst_blanks: dict = {}
+            for c in shown:
+                why = (c.worst_check or {}).get("reason")
+                if why and c.status != "error":
+                    worst_blanks.setdefault(("worst", why), []).append(c.part)
+            for (label, reason), parts in {**worst_blanks, **blanks}.items():
                 # the dash stands for the engine's "none"
                 why = reason.removeprefix("none: ").removeprefix("none, ")
                 note = f"— {label}: {why} ({_listed(parts)})"
@@ -408,6 +414,8 @@ def _summary_of(results: list[BusResult], places) -> tuple:
                                              "id": c.id, "subject": c.subject}
                 if absolute:
                     where["margin_unit"] = c.margin_unit
+                if c.margin is None and c.reason:  # why the worst has no number
+                    where["reason"] = c.reason
     where = _with_status_by(where, None if rank is None else -rank[0], fixed, fixed_rank)
     figures = {}
     for r, (bus, dev) in zip(results, places, strict=True):
