@@ -427,3 +427,27 @@ def test_a_status_no_candidate_can_move_is_named_once(capsys):
     assert "WARN†" in text
     assert text.count("Translator gate drive: a check no part at U4 can move") == 1
     assert_same_ranking(r, cand.rank_candidates_slow(DEMO_DESIGN, "U4"))
+
+
+def test_a_figure_without_a_number_says_why_under_the_table():
+    # Once a bare "—" in the f(max) column: it stood both for "no part limits the clock"
+    # and for "no clock meets the timing", the opposite verdicts. The table now says
+    # which under it, and the JSON carries the engine's reason.
+    d = load_design(Path(__file__).parent / "data" / "spi-cipo-never-high.toml")
+    r = cand.rank_candidates(d, "U2")
+    text = r.format_text(width=80)
+    flat = text.replace("\n  ", " ")
+    assert "— f(max): no clock satisfies CIPO setup U2 (" in flat
+    # and the worst margin that does not exist says why too, first (its column is first)
+    assert "— worst: CIPO never crosses the receiving input's threshold" in flat
+    assert flat.index("— worst:") < flat.index("— f(max):")
+    assert all(c.worst_check["reason"].startswith("CIPO never crosses")
+               for c in r.candidates)
+    doc = r.to_json()
+    cells = [c["figures"]["flash"]["max_clock"] for c in doc["candidates"]]
+    assert cells and all(c["value"] is None and "no clock satisfies" in c["reason"]
+                         for c in cells)
+    # a figure with a number carries no reason, and the ranking compares as before
+    demo = cand.rank_candidates(load_design(DEMO), "U12")
+    assert "reason" not in demo.to_json()["candidates"][0]["figures"]["display"]["max_clock"]
+    assert "— f(max)" not in demo.format_text(width=80)

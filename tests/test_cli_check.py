@@ -383,3 +383,58 @@ def test_a_figure_without_a_number_says_why(capsys, monkeypatch):
         rows = [ln for ln in out.splitlines() if ln.strip().startswith(label + "  ")]
         assert any(why in ln for ln in rows), (path.name, rows)
         assert not any(ln.rstrip().endswith("—") for ln in rows), (path.name, rows)
+
+
+def test_characters_that_act_on_a_terminal_are_shown_not_obeyed(tmp_path, capsys,
+                                                                 monkeypatch):
+    # Once written raw: a design titled with an escape code cleared the terminal's
+    # screen, a carriage return overwrote the line, a right-to-left override reversed
+    # what followed it. They are now shown as their escapes; the file keeps them.
+    text = DEMO.read_text(encoding="utf-8")
+    title = "Bench \x1b[2J board\r\u202eLIAF\x07"
+    design = tmp_path / "odd.toml"
+    escaped = "".join(c if c.isprintable() else f"\\u{ord(c):04x}" for c in title)
+    design.write_text(text.replace('title = "Greenhouse climate logger',
+                                   f'title = "{escaped} Greenhouse climate logger', 1),
+                      encoding="utf-8")
+    main(["check", str(design)])
+    out = capsys.readouterr().out
+    for raw in ("\x1b[2J", "\r", "\u202e", "\x07"):
+        assert raw not in out
+    # (the line's wrapping takes the carriage return for a space)
+    assert "Bench \\x1b[2J board \\u202eLIAF\\x07 Greenhouse" in out
+    assert '"Bench \\u001b[2J' in design.read_text(encoding="utf-8")  # the file as it was
+    # on a terminal the status words keep their colours, and nothing else gets through
+    monkeypatch.delenv("NO_COLOR", raising=False)
+    monkeypatch.setattr(sys.stdout, "isatty", lambda: True, raising=False)
+    main(["check", str(design)])
+    out = capsys.readouterr().out
+    assert "\x1b[33mWARN\x1b[0m" in out
+    assert "\x1b[2J" not in out and "\x07" not in out
+    # an error naming a bad value shows it the same way
+    bad = tmp_path / "bad.toml"
+    bad.write_text(text.replace('supply = "3.3 V"', 'supply = "3.3\\u001b[2J V"', 1),
+                   encoding="utf-8")
+    assert main(["check", str(bad)]) == 2
+    err = capsys.readouterr().err
+    assert "\x1b" not in err and "\\x1b[2J" in err
+
+
+def test_json_is_written_whole(monkeypatch):
+    # The command line's standard output shows control characters as escapes, which
+    # looks at each write: json.dump wrote a chunk per token (a 5 MB document took four
+    # times as long). Every --json is now one write.
+    import io
+
+    class Counting(io.StringIO):
+        writes = 0
+
+        def write(self, s):
+            Counting.writes += 1
+            return super().write(s)
+
+    out = Counting()
+    monkeypatch.setattr(sys, "stdout", out)
+    assert main(["check", str(DEMO), "--json"]) == 0
+    assert Counting.writes == 1
+    assert json.loads(out.getvalue())["format"] == "pinlib.result/1"

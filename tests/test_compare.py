@@ -1006,3 +1006,30 @@ def test_ids_and_couplings_of_another_kind_are_a_damaged_snapshot(tmp_path, plac
         check_snapshot(damaged, path)
     assert info.value.file == str(path) and info.value.field.startswith(place[0])
     assert "damaged" in info.value.message
+
+
+def test_values_of_a_pin_no_bus_connects_are_counted_not_listed():
+    # Once the display's substitution listed the new part's CIPO r_out, edges and levels
+    # as "part values behind the change" on a write-only bus that routes no CIPO: they
+    # change no result. They are now one line per pin; the JSON marks them.
+    demo = Path(__file__).resolve().parents[1] / "workbooks" / "designs" / "demo-board.toml"
+    before = load_design(demo)
+    after = before.with_parts({"U12": "adc-spi"})
+    old = snapshot(before, check_design(before))
+    new = snapshot(after, check_design(after))
+    assert old["parts"]["U12"]["unconnected"] == ["cipo", "dc"]
+    assert old["parts"]["U1"]["unconnected"] == []  # its CIPO is on the flash bus
+    pc = next(p for p in compare(old, new).part_changes if p.ref == "U12")
+    lines = pc.lines()
+    assert any(ln.strip() == "U12 CIPO: 10 values differ, a pin no bus connects" for ln in lines)
+    assert any(ln.strip() == "U12 DC: 8 values differ, a pin no bus connects" for ln in lines)
+    assert not any(re.match(r"\s*U12 (CIPO|DC) \w", ln) for ln in lines)
+    assert any(ln.strip().startswith("U12 t_valid 40 ns") for ln in lines)
+    cipo = [v for v in pc.to_json()["values"] if v["key"].startswith("pins.cipo.")]
+    assert cipo and not any(v["connected"] for v in cipo)
+    # a snapshot from before pinlib recorded the unconnected pins lists every value
+    for doc in (old, new):
+        for entry in doc["parts"].values():
+            entry.pop("unconnected", None)
+    lines = next(p for p in compare(old, new).part_changes if p.ref == "U12").lines()
+    assert any(ln.strip().startswith("U12 CIPO r_out") for ln in lines)

@@ -19,6 +19,7 @@ from pinlib.core.labels import (
     humanize,
     short_label,
     shown_figures,
+    study_row_label,
 )
 from pinlib.engines.dispatch import check_file
 
@@ -101,3 +102,18 @@ def test_a_timing_path_is_named_as_the_checks_table_names_it():
     assert path_label("copi-setup U12") == "COPI setup U12"
     assert path_label("cipo-hold U2") == "CIPO hold U2"
     assert path_label("f_max U1") == "f_max U1"  # no check id: as written
+
+
+@pytest.mark.parametrize("name, check_id, label", [
+    ("flash cipo-setup U7", "cipo-setup", "flash CIPO setup U7"),
+    ("sensors/main-3v3 SCL rise-time", "rise-time", "sensors/main-3v3 SCL Rise time"),
+    ("flash cipo overshoot U1", "overshoot", "flash cipo Overshoot U1"),
+    # a bus named like a check id is never taken for it
+    ("overshoot sclk overshoot U3", "overshoot", "overshoot sclk Overshoot U3"),
+    ("power supply-range #2", "supply-range", "power Supply range #2"),
+    ("power odd", "supply-range", "power odd"),
+])
+def test_a_studys_check_name_reads_with_its_label(name, check_id, label):
+    # Once the corners and Monte Carlo rows showed the raw id ("flash cipo-setup U7")
+    # where every other table shows the check's label.
+    assert study_row_label(name, check_id) == label

@@ -560,7 +560,7 @@ def test_route_chart_captions_say_where_and_claim_no_resistor_the_line_lacks(tmp
 def test_the_edge_rule_clock_note_of_a_routed_bus_speaks_of_receivers(tmp_path):
     # on a route there is no one far end: the edges the rule reads are each receiver's
     _, bus = _check(_flight_design(), tmp_path)
-    note = next(n for n in bus.notes if n.startswith("max_clock_edge_rule"))
+    note = next(n for n in bus.notes if n.startswith("highest clock by the edge rule of thumb"))
     assert "every receiver's edge (at its own point of a route)" in note
     assert "far-end" not in note
 

@@ -380,3 +380,89 @@ def test_a_timing_value_the_part_lacks_is_cited_as_lacking(tmp_path):
     assert "test data, invented" not in source["cipo-setup"]
     # a stated value still names its file's provenance
     assert source["copi-setup"].startswith("pp-periph t_setup: ")
+
+
+# ------------------------------------------------------------------ first bit at CS
+
+_FIRST_BIT_PART = """format = "pinlib.part/1"
+id = "pp-periph-cs-out"
+title = "Test peripheral that drives its first CIPO bit when CS asserts (invented)"
+extends = "pp-periph"
+provenance = { basis = "estimate", source = "test data, invented" }
+
+[timing]
+t_cs_valid = { value = "T_EN", source = "invented for testing" }
+"""
+
+
+def _first_bit_design(tmp_path, t_en="25 ns", **kw):
+    lib = tmp_path / "lib"
+    lib.mkdir(exist_ok=True)
+    (lib / "pp-periph-cs-out.toml").write_text(_FIRST_BIT_PART.replace("T_EN", t_en),
+                                               encoding="utf-8")
+    return write_design(tmp_path, peripherals=("pp-periph-cs-out",), extra_library=lib, **kw)
+
+
+@pytest.mark.parametrize("mode", [0, 1, 2, 3])
+def test_the_first_cipo_bit_after_cs_is_budgeted_in_cpha_0(tmp_path, mode):
+    # Once not budgeted at all: in CPHA 0 a peripheral that drives its first bit when CS
+    # asserts has it sampled on the first edge, the controller's CS lead after CS leaves
+    # it (half a period for pp-ctrl, which records no t_cs_setup). derived: lead -
+    # (CS flight + t_cs_valid + CIPO flight) >= the controller's t_setup
+    d, bus = _first_bit_design(tmp_path, mode=mode, clock="5 MHz")
+    sa = spi.spi_analysis(bus, d)
+    terms = {t.id: t for t in sa.terms}
+    if spi.SPI_MODES[mode].cpha == 1:  # the first bit follows the first edge
+        assert "cipo-first-bit" not in terms
+        return
+    t = terms["cipo-first-bit"]
+    p = sa.peripherals[0]
+    assert (t.a, t.subject, t.required) == (0.5, "U2", pytest.approx(3e-9))  # pp-ctrl t_setup
+    assert t.b == pytest.approx(-(p.cs.late + 25e-9 + p.cipo.late), rel=1e-12)
+    assert p.cs.late > 0 and p.cipo.late > 0
+    res = evaluate_bus(bus, d)
+    chk = next(c for c in res.checks if c.id == "cipo-first-bit")
+    period = 1 / 5e6
+    assert chk.value == pytest.approx(period / 2 + t.b, rel=1e-12)
+    assert chk.limit == pytest.approx(3e-9) and chk.status == "pass"
+    assert "pp-periph-cs-out t_cs_valid" not in chk.source  # the requirement is t_setup's
+    assert "pp-ctrl t_setup" in chk.source
+    assert "first CIPO bit" in chk.message
+
+
+def test_a_slow_first_bit_sets_the_highest_clock(tmp_path):
+    # derived: with t_cs_valid 60 ns the first bit needs T/2 >= CS flight + 60 ns + CIPO
+    # flight + 3 ns, a lower clock than any other term allows
+    d, bus = _first_bit_design(tmp_path, t_en="60 ns", clock="5 MHz")
+    sa = spi.spi_analysis(bus, d)
+    t = next(t for t in sa.terms if t.id == "cipo-first-bit")
+    res = evaluate_bus(bus, d)
+    assert res.figures["max_clock_limited_by"].value == "cipo-first-bit U2"
+    assert res.figures["max_clock"].value == pytest.approx(1 / (2 * (t.required - t.b)),
+                                                           rel=1e-9)
+    # a clock above it fails the check; the budget chart draws the path and adds up
+    d2, bus2 = _first_bit_design(tmp_path, t_en="60 ns", clock="10 MHz", name="fast.toml")
+    chk = next(c for c in evaluate_bus(bus2, d2).checks if c.id == "cipo-first-bit")
+    assert chk.status == "fail"
+    from pinlib.present.plotdata import timing_budget_data
+    data = timing_budget_data(bus2, d2)
+    assert "cipo-first-bit U2" in data.available
+
+
+def test_a_bridge_delays_the_first_bit_both_ways(tmp_path):
+    iso = '{ ref = "U9", part = "pp-isolator" }'
+    d0, bus0 = _first_bit_design(tmp_path)
+    d1, bus1 = _first_bit_design(tmp_path, extra_devices=iso, name="iso.toml")
+    b0 = next(t for t in spi.spi_analysis(bus0, d0).terms if t.id == "cipo-first-bit").b
+    b1 = next(t for t in spi.spi_analysis(bus1, d1).terms if t.id == "cipo-first-bit").b
+    # derived: CS crosses the 10 ns isolator out, the first bit back
+    assert b1 == pytest.approx(b0 - 2 * 10e-9, rel=1e-12)
+
+
+def test_a_cpha_0_peripheral_without_t_cs_valid_is_noted(tmp_path):
+    d, bus = write_design(tmp_path, mode=0)
+    res = evaluate_bus(bus, d)
+    assert not any(c.id == "cipo-first-bit" for c in res.checks)
+    assert any("records no t_cs_valid" in n and "not budgeted" in n for n in res.notes)
+    d3, bus3 = write_design(tmp_path, mode=3, name="m3.toml")
+    assert not any("t_cs_valid" in n for n in evaluate_bus(bus3, d3).notes)

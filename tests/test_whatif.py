@@ -666,12 +666,12 @@ def test_monte_carlo_says_on_how_many_boards_a_passing_check_warned(capsys, monk
                         lambda self, limit=12: shown(self, None))  # every row
     assert main(["check", str(DEMO), "--monte-carlo", "200", "--seed", "1"]) == 0
     out = capsys.readouterr().out
-    row = next(ln for ln in out.splitlines() if "bridge-gate-drive" in ln)
+    row = next(ln for ln in out.splitlines() if "Translator gate drive Q1 " in ln)
     assert "(200/200)" in row and "warns on 200;" in row
     low = gate["margin"]["min"]
     assert f"min  +{low * 1e3:.0f} mV  warns" in row  # it read "min  +21.3 %"
     assert "a warning passing" in out
-    assert not any("warns on" in ln for ln in out.splitlines() if "supply-range" in ln)
+    assert not any("warns on" in ln for ln in out.splitlines() if "Supply range" in ln)
 
 
 def test_margin_order_keeps_volts_after_fractions_and_places_missing_margins():
@@ -696,7 +696,7 @@ def test_a_row_without_sensitivities_says_why(capsys, monkeypatch):
     one_km = ROOT / "tests" / "data" / "spi-one-km.toml"
     assert main(["check", str(one_km), "--monte-carlo", "20", "--seed", "1"]) == 1
     out = capsys.readouterr().out
-    row = next(ln for ln in out.splitlines() if "cipo-setup" in ln and "(0/20)" in ln)
+    row = next(ln for ln in out.splitlines() if "CIPO setup" in ln and "(0/20)" in ln)
     assert row.rstrip().endswith("the same margin on every board")
     assert not any(ln.rstrip().endswith("—") for ln in out.splitlines())
 
@@ -750,3 +750,20 @@ def test_a_pass_fraction_short_of_one_never_reads_100_percent():
     assert percent_text(1 / 300_000) == "0.0003%"
     assert percent_text(0.91004) == "91.00%"       # two decimals where they tell
     assert (percent_text(1.0), percent_text(0.0)) == ("100.00%", "0.00%")
+
+
+def test_corner_and_monte_carlo_rows_name_checks_by_their_labels(capsys, monkeypatch):
+    # Once "flash cipo-setup U7" and "pass ... +3.6 %  at" with the corner on the next
+    # line: the rows now read as the checks table does, and "at" stays with its corner.
+    from pinlib.studies.whatif import cornersearch, mcresult
+
+    for cls in (mcresult.McResult, cornersearch.CornersResult):
+        shown = cls.format_text
+        monkeypatch.setattr(cls, "format_text", lambda self, limit=12, f=shown: f(self, None))
+    assert main(["check", str(DEMO), "--corners", "--monte-carlo", "50", "--seed", "1"]) == 0
+    out = capsys.readouterr().out
+    study = out[out.index("Corners:"):]
+    assert "flash CIPO setup U7" in study and "cipo-setup" not in study
+    assert "sensors/main-3v3 SCL Rise time" in study and "rise-time" not in study
+    assert not any(ln.rstrip().endswith(" at") for ln in study.splitlines())
+    assert "    PASS  " in study and "    pass  " not in study

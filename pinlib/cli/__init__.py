@@ -144,6 +144,7 @@ def main(argv: list[str] | None = None) -> int:
     ``np.unique(..., axis=0)`` reports a TypeError when it lands in its comparison): an
     error after Ctrl-C is the interrupt's."""
     watch = _InterruptWatch()
+    streams = _visible_streams()
     try:
         return _main(argv)
     except KeyboardInterrupt:
@@ -154,6 +155,21 @@ def main(argv: list[str] | None = None) -> int:
         raise
     finally:
         watch.close()
+        sys.stdout, sys.stderr = streams
+
+
+def _visible_streams() -> tuple:
+    """Standard output and error made to show every character that would act on a
+    terminal (:mod:`pinlib.present.visible`: an escape code in a design's title, a
+    carriage return in a note); the streams before, to be put back."""
+    from pinlib.present.visible import VisibleStream
+
+    before = sys.stdout, sys.stderr
+    if sys.stdout is not None and not isinstance(sys.stdout, VisibleStream):
+        sys.stdout = VisibleStream(sys.stdout)
+    if sys.stderr is not None and not isinstance(sys.stderr, VisibleStream):
+        sys.stderr = VisibleStream(sys.stderr, keep_cr=True)  # progress bars redraw
+    return before
 
 
 class _InterruptWatch:

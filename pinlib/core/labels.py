@@ -23,7 +23,7 @@ from collections.abc import Callable, Mapping
 from typing import Any
 
 __all__ = ["FIGURES", "SHORT", "CHECKS", "figure_label", "short_label", "check_label",
-           "path_label", "shown_figures", "humanize"]
+           "path_label", "study_row_label", "shown_figures", "humanize"]
 
 #: Figure id -> label, in the order a table lists them (units come with the values).
 FIGURES: dict[str, str] = {
@@ -183,6 +183,20 @@ def path_label(path: str) -> str:
     if "-" not in head:
         return path
     return f"{check_label(head)} {rest}".strip()
+
+
+def study_row_label(name: str, check_id: str) -> str:
+    """A study's name of a check (:attr:`pinlib.studies.whatif.mcresult.McCheck.name`,
+    the key that matches it across boards) for people: its check id as its label,
+    ``"flash cipo-setup U7"`` -> ``"flash CIPO setup U7"``, ``"sensors/main-3v3 SCL
+    pullup-window"`` -> ``"sensors/main-3v3 SCL Pull-up window"`` (the bus or segment
+    before it is never taken for the id)."""
+    words = name.split(" ")
+    for i in range(1, len(words)):
+        if words[i] == check_id:
+            words[i] = check_label(check_id)
+            return " ".join(words)
+    return name
 
 
 def _order(name: str) -> tuple[int, int]:

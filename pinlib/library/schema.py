@@ -184,6 +184,8 @@ class Timing(Record):
     t_hold: Time | None = None
     t_cs_setup: Time | None = None
     t_cs_hold: Time | None = None
+    # a peripheral that drives its first CIPO bit when CS asserts (CPHA 0): CS to valid
+    t_cs_valid: Time | None = None
     test_load: Capacitance | None = None
     # bridging parts, isolators, buffers
     t_pd: Time | None = None

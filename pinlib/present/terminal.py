@@ -9,7 +9,8 @@
 * Colour: only the status words (PASS, WARN, FAIL) are coloured, and only when the
   output is a terminal and ``NO_COLOR`` is unset or empty (the https://no-color.org
   convention).  The few ANSI codes are written here: no library is imported, so a
-  fresh ``pinlib check`` pays nothing for them.
+  fresh ``pinlib check`` pays nothing for them.  Every other character that would act
+  on a terminal is shown as its escape (:mod:`pinlib.present.visible`).
 * Wrapping: :func:`wrap` (:mod:`pinlib.core.wrapping`, re-exported here) fits one logical
   line to the width with its continuation lines indented; the width counts characters,
   not escape codes, since colour is added after wrapping.
@@ -23,9 +24,11 @@ import sys
 
 from pinlib.core.commandtext import continued_lines
 from pinlib.core.wrapping import NBSP, wrap
+from pinlib.present.visible import RESET
+from pinlib.present.visible import STATUS_SGR as _SGR
 
 __all__ = ["DEFAULT_WIDTH", "MIN_WIDTH", "columns", "width", "use_colour", "status_word", "wrap",
-           "fitted", "shell_word", "shown_path"]
+           "fitted", "shell_word", "shown_path", "write_json"]
 
 #: Columns when standard output is not a terminal and COLUMNS is not set.
 DEFAULT_WIDTH = 80
@@ -37,8 +40,6 @@ MIN_WIDTH = 40
 _HEAD = re.compile(r"^[\w-]+: [\w-]+: \S+")
 
 _WORDS = {"pass": "PASS", "warn": "WARN", "fail": "FAIL"}
-#: SGR codes: green, yellow, bold red.
-_SGR = {"pass": "32", "warn": "33", "fail": "1;31"}
 
 
 def columns(fallback: int = DEFAULT_WIDTH) -> int:
@@ -93,7 +94,7 @@ def status_word(status: str, colour: bool = False) -> str:
     word = _WORDS.get(status, status.upper())
     if not colour or status not in _SGR:
         return word
-    return f"\x1b[{_SGR[status]}m{word}\x1b[0m"
+    return f"\x1b[{_SGR[status]}m{word}\x1b[{RESET}m"
 
 
 def fitted(line: str, stream=None) -> str:
@@ -146,3 +147,13 @@ def shown_path(path) -> str:
     except ValueError:  # another drive (Windows)
         return str(path)
     return str(path) if rel.startswith("..") else rel
+
+
+def write_json(doc) -> None:
+    """``doc`` on standard output as indented JSON and a line break, in one write
+    (``json.dump`` writes a chunk per token: a stream that looks at each write, as the
+    command line's :class:`~pinlib.present.visible.VisibleStream`, took four times as
+    long over a 5 MB document)."""
+    import json
+
+    sys.stdout.write(json.dumps(doc, indent=2, ensure_ascii=False) + "\n")

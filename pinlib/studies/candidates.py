@@ -166,11 +166,21 @@ class Candidate:
                 "status": self.status, "worst_margin": json_number(self.worst_margin),
                 "worst_margin_unit": (self.worst_check or {}).get("margin_unit"),
                 "worst_check": self.worst_check,
-                "figures": {b: {k: {"value": json_number(v), "unit": u} for k, (v, u) in f.items()}
+                "figures": {b: {k: _figure_json(cell) for k, cell in f.items()}
                             for b, f in self.figures.items()},
                 "current": self.current, "method": self.method, "error": self.error}
 
 
+
+
+def _figure_json(cell: tuple) -> dict:
+    """``{"value", "unit"}``, and ``"reason"`` where the figure has no number and the
+    engine says why (:class:`FigureCell`)."""
+    value, unit = cell
+    out = {"value": json_number(value), "unit": unit}
+    if value is None and getattr(cell, "reason", None):
+        out["reason"] = cell.reason
+    return out
 
 
 @value_class
@@ -242,11 +252,11 @@ class Ranking:
             for b in self.buses:
                 for name, unit in FIGURES["open-drain" if b["protocol"] in OPEN_DRAIN_PROTOCOLS
                                           else "push-pull"]:
-                    fig_cols.append((b["bus"], name, unit))
+                    fig_cols.append((b["bus"], name, unit, f"{short_label(name)}@{b['bus']}"
+                                     if len(self.buses) > 1 else short_label(name)))
             multi = len(self.buses) > 1
-            head = ["#", "part", "status", "worst", "set by"] + [
-                (f"{short_label(n)}@{b}" if multi else short_label(n)) for b, n, _ in fig_cols]
-            rows = []
+            head = ["#", "part", "status", "worst", "set by"] + [c[3] for c in fig_cols]
+            rows, blanks = [], {}
             for i, c in enumerate(shown, 1):
                 wc = c.worst_check
                 by = "—" if wc is None else _where_text(wc, multi)
@@ -254,9 +264,11 @@ class Ranking:
                        c.status.upper() + ("†" if wc and wc.get("status_by") else ""),
                        c.margin_text(1), by if c.status != "error" else
                        (c.error or "")]
-                for b, n, unit in fig_cols:
+                for b, n, unit, label in fig_cols:
                     v = c.figures.get(b, {}).get(n)
                     row.append("—" if v is None or v[0] is None else format_si(v[0], unit))
+                    if v is not None and v[0] is None and getattr(v, "reason", None):
+                        blanks.setdefault((label, v.reason), []).append(c.part)
                 rows.append(row)
             table, dropped = fit_table(head, rows, width, keep=5)
             lines.append("")
@@ -267,11 +279,29 @@ class Ranking:
             if len(shown) < len(self.candidates):
                 lines.append(f"… {len(self.candidates) - len(shown)} more (--top N)")
             lines.append("* the part in the design now")
+            # each "—" without a number, in the order of the columns: why
+            worst_blanks: dict = {}
+            for c in shown:
+                why = (c.worst_check or {}).get("reason")
+                if why and c.status != "error":
+                    worst_blanks.setdefault(("worst", why), []).append(c.part)
+            for (label, reason), parts in {**worst_blanks, **blanks}.items():
+                # the dash stands for the engine's "none"
+                why = reason.removeprefix("none: ").removeprefix("none, ")
+                note = f"— {label}: {why} ({_listed(parts)})"
+                lines += [note] if width is None else wrap(note, width, subsequent="  ")
             for note in self.status_notes(shown):
                 lines += [note] if width is None else wrap(note, width, subsequent="  ")
         for n in self.notes:
             lines += [f"note: {n}"] if width is None else wrap(f"note: {n}", width)
         return "\n".join(lines) + "\n"
+
+
+def _listed(parts: list[str], most: int = 3) -> str:
+    """``a, b, c`` or ``a, b, c and 4 more``."""
+    if len(parts) <= most:
+        return ", ".join(parts)
+    return f"{', '.join(parts[:most])} and {len(parts) - most} more"
 
 
 # ============================================================================ eligibility
@@ -384,6 +414,8 @@ def _summary_of(results: list[BusResult], places) -> tuple:
                                              "id": c.id, "subject": c.subject}
                 if absolute:
                     where["margin_unit"] = c.margin_unit
+                if c.margin is None and c.reason:  # why the worst has no number
+                    where["reason"] = c.reason
     where = _with_status_by(where, None if rank is None else -rank[0], fixed, fixed_rank)
     figures = {}
     for r, (bus, dev) in zip(results, places, strict=True):
@@ -396,7 +428,7 @@ def _summary_of(results: list[BusResult], places) -> tuple:
             figs = FIGURES["open-drain"]
         else:
             group, figs = r, FIGURES["push-pull"]
-        figures[r.id] = {n: (_fig(group, n), u) for n, u in figs}
+        figures[r.id] = {n: FigureCell(_fig(group, n), u, _why(group, n)) for n, u in figs}
     return status, best, where, figures, sorted(margins)
 
 
@@ -418,6 +450,22 @@ def _with_status_by(where: dict | None, rank: int | None, fixed: dict | None,
         return where
     return {**(where or {k: fixed[k] for k in ("bus", "segment", "line", "id", "subject")}),
             "status_by": fixed}
+
+
+class FigureCell(tuple):
+    """A candidate's figure: ``(value, unit)``, compared and unpacked as that pair, with
+    ``reason``: why it has no number, where the engine says (``max_clock``: no part
+    limits the clock, or no clock meets the timing); None beside a number."""
+
+    def __new__(cls, value, unit: str, reason: str | None = None):
+        cell = super().__new__(cls, (value, unit))
+        cell.reason = reason if value is None else None
+        return cell
+
+
+def _why(group, name) -> str | None:
+    f = group.figures.get(name)
+    return None if f is None else f.reason
 
 
 def _fig(group, name):

@@ -3,12 +3,12 @@
 from __future__ import annotations
 
 import argparse
-import json
 import sys
 
 from pinlib.cli import SUMMARIES
 from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
+from pinlib.present.terminal import write_json
 
 __all__ = ["add_parser", "run"]
 
@@ -80,8 +80,7 @@ def run(args) -> int:
     ranking = rank_candidates(design, args.ref, categories=args.category or None,
                               progress=True if args.progress else None)
     if args.json:
-        json.dump(ranking.to_json(args.top), sys.stdout, indent=2, ensure_ascii=False)
-        sys.stdout.write("\n")
+        write_json(ranking.to_json(args.top))
     else:
         from pinlib.present.terminal import table_width
 

@@ -3,12 +3,12 @@
 from __future__ import annotations
 
 import argparse
-import json
 import sys
 
 from pinlib.cli import SUMMARIES
 from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
+from pinlib.present.terminal import write_json
 
 __all__ = ["add_parser", "run"]
 
@@ -158,8 +158,7 @@ def _run_many(args, paths) -> int:
         if s.save_error is not None:
             print(fitted(f"pinlib: error: {s.save_error}", sys.stderr), file=sys.stderr)
     if args.json:
-        json.dump([_many_json(s) for s in summaries], sys.stdout, indent=2, ensure_ascii=False)
-        sys.stdout.write("\n")
+        write_json([_many_json(s) for s in summaries])
     else:
         from pinlib.present.designs import format_many
         from pinlib.present.terminal import table_width
@@ -238,8 +237,7 @@ def _run_one(args) -> int:
             out["changes"] = changes.to_json()
         for key, value in extra.items():
             out[key] = value.to_json()
-        json.dump(out, sys.stdout, indent=2, ensure_ascii=False)
-        sys.stdout.write("\n")
+        write_json(out)
     else:
         sys.stdout.write(render_text(result, args, design_arg=args.design))
         if changes is not None and not getattr(args, "quiet", False):

@@ -3,12 +3,12 @@
 from __future__ import annotations
 
 import argparse
-import json
 import sys
 
 from pinlib.cli import SUMMARIES
 from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
+from pinlib.present.terminal import write_json
 
 __all__ = ["add_parser", "run", "levels_type"]
 
@@ -86,8 +86,7 @@ def run(args) -> int:
     got = compare_rise(design, args.bus, rise, probe, levels=args.levels, signal=args.line,
                        segment=args.segment)
     if args.json:
-        json.dump(got.to_json(), sys.stdout, indent=2, ensure_ascii=False)
-        sys.stdout.write("\n")
+        write_json(got.to_json())
     else:
         from pinlib.present.terminal import table_width
 

@@ -13,13 +13,13 @@ substituted devices changes; comments and formatting stay.
 from __future__ import annotations
 
 import argparse
-import json
 import re
 import sys
 
 from pinlib.cli import SUMMARIES
 from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
+from pinlib.present.terminal import write_json
 
 __all__ = ["add_parser", "run", "threshold_type", "parse_assignments"]
 
@@ -188,12 +188,10 @@ def run(args) -> int:
     swap_rows = _swap_rows(design, swaps)
 
     if args.json:
-        json.dump({"format": "pinlib.swap/1", "design": design.title, "path": str(design.path),
+        write_json({"format": "pinlib.swap/1", "design": design.title, "path": str(design.path),
                    "swaps": swap_rows, "threshold": threshold, "written": written,
                    "before": before.to_json(), "after": after.to_json(),
-                   "figures": [r.to_json() for r in rows], "changes": changes.to_json()},
-                  sys.stdout, indent=2, ensure_ascii=False)
-        sys.stdout.write("\n")
+                   "figures": [r.to_json() for r in rows], "changes": changes.to_json()})
         return after.exit_code()
     out = _text(design, swap_rows, rows, before, after, changes,
                 detail=getattr(args, "detail", False))
@@ -245,10 +243,8 @@ def _report_refusals(args, design, refused: list[dict]) -> int:
             print(fitted(f"  - {reason}", sys.stderr), file=sys.stderr)
     print("pinlib: " + M.DESIGN_NOT_CHANGED.format(path=args.design), file=sys.stderr)
     if args.json:
-        json.dump({"format": "pinlib.swap/1", "design": design.title,
-                   "path": str(design.path), "refused": refused, "written": False},
-                  sys.stdout, indent=2, ensure_ascii=False)
-        sys.stdout.write("\n")
+        write_json({"format": "pinlib.swap/1", "design": design.title,
+                   "path": str(design.path), "refused": refused, "written": False})
     return 2
 
 
@@ -417,10 +413,8 @@ def _run_many(args) -> int:
             print(fitted("pinlib: error: " + M.DESIGN_NOT_LOADED.format(
                 path=s.path, message=s.error), sys.stderr), file=sys.stderr)
     if args.json:
-        json.dump({"format": "pinlib.swaps/1", "parts": parts, "write": args.write,
-                   "designs": [s.to_json() for s in summaries]},
-                  sys.stdout, indent=2, ensure_ascii=False)
-        sys.stdout.write("\n")
+        write_json({"format": "pinlib.swaps/1", "parts": parts, "write": args.write,
+                   "designs": [s.to_json() for s in summaries]})
     else:
         from pinlib.present.terminal import table_width
 

@@ -44,6 +44,11 @@ With ``T`` the clock period, all flights at the peripheral P unless said otherwi
   ``lead`` is the controller's CS-to-first-edge time: its own ``t_cs_setup`` when the
   class records one, else half a clock period (a controller that asserts CS one half
   clock before the first edge; common practice, no source).
+* First CIPO bit at the controller (CPHA 0, a peripheral that records ``t_cs_valid``,
+  its CS-asserted-to-output-valid time): ``lead - (cs_late + t_cs_valid + cipo_late +
+  2 t_pd) >= t_setup(controller)``: the first bit leaves when CS asserts and is sampled
+  on the first edge.  Without ``t_cs_valid`` a note says the first bit is not budgeted
+  (a memory drives nothing until a command is in; many converters drive at once).
 
 Bridging parts (buffers, translators, isolators) with a ``t_pd`` lie in the path of
 every signal.  On the forward paths (SCLK, COPI, CS) the clock and the data cross the

@@ -311,12 +311,17 @@ def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
         for name in ("t_setup", "t_hold", "t_cs_setup"):
             if getattr(p.part.timing, name) is None:
                 notes.append(f"{p.ref} ({p.part_id}) records no {name}: taken as 0")
+        t_cs_valid = _timing_value(p, "t_cs_valid")
+        if mode.cpha == 0 and cipo is not None and cs is not None and t_cs_valid is None:
+            notes.append(f"{p.ref} ({p.part_id}) records no t_cs_valid: a first CIPO bit "
+                         "it drives when CS asserts (CPHA 0) is not budgeted")
         periph_t.append(PeripheralTiming(
             p.ref, sclk_f, copi, cs, cipo, tv, _timing_value(p, "t_setup"),
             _timing_value(p, "t_hold"), _timing_value(p, "t_cs_setup"),
             _timing_value(p, "f_max"),
             {n: _sourced_text(p, n) for n in ("t_valid", "t_setup", "t_hold", "t_cs_setup",
-                                              "f_max")}))
+                                              "t_cs_valid", "f_max")},
+            t_cs_valid=t_cs_valid))
     terms = budget_terms(mode, ctl, periph_t, t_bridge)
     f_limits = []
     for d in [controller] + peripherals + bridges:

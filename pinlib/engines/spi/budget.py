@@ -32,6 +32,8 @@ class PeripheralTiming:
         routed or the part has no such pin. [s]
     t_valid, t_setup, t_hold, t_cs_setup : float or None
         The peripheral's timing values. [s]
+    t_cs_valid : float or None
+        CS asserted to its first CIPO bit valid at its pin (CPHA 0), maximum. [s]
     f_max : float or None
         The peripheral's clock limit. [Hz]
     sources : dict
@@ -49,6 +51,7 @@ class PeripheralTiming:
     t_cs_setup: float | None = None
     f_max: float | None = None
     sources: dict = field(default_factory=dict)
+    t_cs_valid: float | None = None
 
 
 @value_class(frozen=True)
@@ -150,8 +153,9 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
     -------
     list of Term
         COPI setup and hold, CIPO setup and hold and CS setup for each peripheral that
-        has the signals; a term whose inputs are missing (no CIPO route, no
-        ``t_valid``) is left out, and the caller says so.
+        has the signals, and in a CPHA 0 mode the first CIPO bit after CS where the
+        peripheral records ``t_cs_valid``; a term whose inputs are missing (no CIPO
+        route, no ``t_valid``) is left out, and the caller says so.
     """
     terms: list[Term] = []
     c_src = controller.sources
@@ -198,4 +202,16 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 _or0(p.t_cs_setup), src.get("t_cs_setup", ""),
                 {"lead": lead_text, "sclk_early": s_first.early, "cs_late": p.cs.late,
                  "t_cs_setup": _or0(p.t_cs_setup)}))
+            if mode.cpha == 0 and p.cipo is not None and p.t_cs_valid is not None:
+                # CPHA 0: the first bit is driven when CS asserts and sampled on the first
+                # edge, ``lead`` after CS leaves the controller; CS crosses each bridge
+                # out and CIPO back
+                t_path = 2.0 * t_bridge
+                terms.append(Term(
+                    "cipo-first-bit", p.ref, a,
+                    lead - (p.cs.late + p.t_cs_valid + p.cipo.late + t_path),
+                    _or0(controller.t_setup), c_src.get("t_setup", ""),
+                    {"lead": lead_text, "cs_late": p.cs.late, "t_cs_valid": p.t_cs_valid,
+                     "cipo_late": p.cipo.late, "bridges_round_trip": t_path,
+                     "t_setup_controller": _or0(controller.t_setup)}))
     return terms

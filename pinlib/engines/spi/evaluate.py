@@ -6,6 +6,7 @@ import math
 
 import numpy as np
 
+from pinlib.core.labels import path_label
 from pinlib.engines.pushline import (
     EDGE_FRACTION,
 )
@@ -29,6 +30,9 @@ _TERM_TEXT = {
                   "available hold {avail} against the controller's t_hold {req}"),
     "cs-setup": ("CS setup at {ref}", "CS leads the first edge by {avail} against "
                                       "t_cs_setup {req}"),
+    "cipo-first-bit": ("first CIPO bit at the controller from {ref} (driven when CS "
+                       "asserts)", "CS to the first sampling edge leaves {avail} against "
+                                   "the controller's t_setup {req}"),
 }
 
 #: The bus figures that hold the lowest margin of a term id over the peripherals.
@@ -53,7 +57,8 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
     -------
     BusResult
         One line result per routed signal; checks ``copi-setup``, ``copi-hold``,
-        ``cipo-setup``, ``cipo-hold``, ``cs-setup`` (per peripheral) and ``f-max``
+        ``cipo-setup``, ``cipo-hold``, ``cs-setup``, ``cipo-first-bit`` (CPHA 0, a
+        peripheral that records ``t_cs_valid``; per peripheral) and ``f-max``
         (per part); figures ``max_clock`` [Hz], ``cipo_setup_margin``,
         ``copi_setup_margin`` and ``copi_hold_margin`` (the worst over peripherals,
         available minus required time; None when not computed) [s].
@@ -82,25 +87,25 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
         res.lines.append(la.result)
     (f_top, by, _), (f_edge, edge_sig) = sa.clock_limits()[0], sa.edge_rule_clock()
     if f_top <= 0:
-        res.figure("max_clock", None, "Hz", reason=f"none: no clock satisfies {by}")
-        res.notes.append(f"max_clock: none, no clock satisfies {by}")
+        res.figure("max_clock", None, "Hz",
+                   reason=f"none: no clock satisfies {path_label(by)}")
+        res.notes.append(f"highest clock: none, no clock satisfies {path_label(by)}")
     elif math.isfinite(f_top):
         res.figure("max_clock", f_top, "Hz")
-        res.notes.append(f"max_clock {_fmt(f_top, 'Hz')}: the highest clock the timing "
-                         f"budget and the parts' f_max allow, set by {by}")
+        res.notes.append(f"highest clock {_fmt(f_top, 'Hz')}: what the timing budget and "
+                         f"the parts' f_max allow, set by {path_label(by)}")
     else:  # no number to give: in words, never as infinity
         res.figure("max_clock", None, "Hz", reason=NO_CLOCK_LIMIT)
-        res.notes.append(f"max_clock: {NO_CLOCK_LIMIT}")
+        res.notes.append(f"highest clock: {NO_CLOCK_LIMIT}")
     res.figure("max_clock_limited_by", by, "")
     res.figure("max_clock_edge_rule", f_edge, "Hz")
     if math.isfinite(f_edge):
         # on a route the edges are each receiver's at its own point, not a far end's
         edges = ("receiver's edge (at its own point of a route)"
                  if any(la.net is not None for la in sa.lines.values()) else "far-end edge")
-        res.notes.append(f"max_clock_edge_rule {_fmt(f_edge, 'Hz')}: the highest clock at "
-                         f"which every {edges} keeps within {EDGE_FRACTION:.0%} of the "
-                         f"period (rule of thumb; set by {edge_sig}); it warns, it does not "
-                         "limit")
+        res.notes.append(f"highest clock by the edge rule of thumb {_fmt(f_edge, 'Hz')}: "
+                         f"every {edges} keeps within {EDGE_FRACTION * 100:.0f} % of the "
+                         f"period up to it (set by {edge_sig}); it warns, it does not limit")
     for fig, tid in MARGIN_FIGURES:
         # a figure without a number says why, in place of it (it read "—"); the notes
         # repeat a reason the checks do not give

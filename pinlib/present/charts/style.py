@@ -69,6 +69,7 @@ SERIES_COLOURS = {
     "SCLK flight": SKY_BLUE,
     "required setup or hold": SAND,
     "bridging parts": INDIGO,
+    "output valid after CS (t_cs_valid)": OLIVE,
 }
 
 # The charts' font.  vl-convert measures text with the first family it finds (DejaVu

@@ -88,6 +88,11 @@ BUDGET_COMPONENTS = {
     "cs-setup": (("cs_late", 1.0, "data or CS flight"),
                  ("sclk_early", -1.0, "SCLK flight"),
                  ("t_cs_setup", 1.0, "required setup or hold")),
+    "cipo-first-bit": (("cs_late", 1.0, "data or CS flight"),
+                       ("t_cs_valid", 1.0, "output valid after CS (t_cs_valid)"),
+                       ("cipo_late", 1.0, "data or CS flight"),
+                       ("bridges_round_trip", 1.0, "bridging parts"),
+                       ("t_setup_controller", 1.0, "required setup or hold")),
 }
 
 

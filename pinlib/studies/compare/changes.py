@@ -239,10 +239,18 @@ class ValueChange:
     key: str
     old: dict | None
     new: dict | None
+    #: False for a value of a pin no bus of the design connects (it changes no result)
+    connected: bool = True
 
     @property
     def label(self) -> str:
         return value_label(self.key)
+
+    @property
+    def pin(self) -> str | None:
+        """The pin the value belongs to (``pins.cipo.r_out`` -> ``cipo``), else None."""
+        head, _, rest = self.key.partition(".")
+        return rest.partition(".")[0] if head == "pins" and rest else None
 
     def format(self, ref: str, part_id: str | None = None) -> str:
         """``U4 SDA c_in 8 pF → 80 pF, source: … [estimate]``; the part file that set
@@ -260,7 +268,8 @@ class ValueChange:
         return text + (", " + ", ".join(bits) if bits else "")
 
     def to_json(self) -> dict:
-        return {"key": self.key, "label": self.label, "old": self.old, "new": self.new}
+        return {"key": self.key, "label": self.label, "old": self.old, "new": self.new,
+                "connected": self.connected}
 
 
 @value_class
@@ -288,7 +297,25 @@ class PartChange:
         if self.old_part is None or self.new_part is None:
             return [head]  # a device placed or removed: its values are not changes
         shown_part = self.new_part if self.new_part is not None else self.old_part
-        return [head] + ["  " + v.format(self.ref, shown_part) for v in self.values]
+        return [head] + ["  " + v.format(self.ref, shown_part) for v in self.connected
+                         ] + ["  " + line for line in self.unconnected_lines()]
+
+    @property
+    def connected(self) -> list[ValueChange]:
+        """The values that differ on pins the board connects (and the part's others)."""
+        return [v for v in self.values if v.connected]
+
+    def unconnected_lines(self) -> list[str]:
+        """One line per pin no bus connects whose values differ: they change no result,
+        so they are counted, not listed (``U12 CIPO: 9 values differ, a pin no bus
+        connects``)."""
+        counts: dict[str, int] = {}
+        for v in self.values:
+            if not v.connected:
+                counts[v.pin] = counts.get(v.pin, 0) + 1
+        return [f"{self.ref} {pin.upper()}: {n} value{'s' if n != 1 else ''} "
+                f"differ{'s' if n == 1 else ''}, a pin no bus connects"
+                for pin, n in counts.items()]
 
     def to_json(self) -> dict:
         return {"ref": self.ref, "old_part": self.old_part, "new_part": self.new_part,
@@ -414,6 +441,22 @@ def _paired_checks(old_c: dict, new_c: dict) -> list[tuple[dict | None, dict | N
     return pairs
 
 
+def _idle_pins(old: dict | None, new: dict | None) -> set[str]:
+    """The pins of a device that no bus connects on either board, or that one of the two
+    parts lacks and the other's board leaves unconnected: their values change no result.
+    A snapshot that does not say (written before pinlib recorded ``unconnected``, or a
+    bridging part) counts every pin as connected."""
+    if old is None or new is None or "unconnected" not in old or "unconnected" not in new:
+        return set()
+
+    def pins(entry):
+        return {k.split(".")[1] for k in entry.get("values", {}) if k.startswith("pins.")}
+
+    both = pins(old) | pins(new)
+    return {p for p in both if all(p in e["unconnected"] or p not in pins(e)
+                                   for e in (old, new))}
+
+
 def compare(old_snapshot: dict, new_snapshot: dict, *, threshold: float = DEFAULT_THRESHOLD
             ) -> ChangeList:
     """Compare two snapshots (or two plain results).
@@ -492,9 +535,11 @@ def compare(old_snapshot: dict, new_snapshot: dict, *, threshold: float = DEFAUL
         for ref in list(new_p) + [r for r in old_p if r not in new_p]:
             o, n = old_p.get(ref), new_p.get(ref)
             ov, nv = (o or {}).get("values", {}), (n or {}).get("values", {})
+            idle = _idle_pins(o, n)
             values = [ValueChange(k, ov.get(k), nv.get(k))
                       for k in list(nv) + [k for k in ov if k not in nv]
                       if not _same_value(ov.get(k), nv.get(k))]
+            values = [ValueChange(v.key, v.old, v.new, v.pin not in idle) for v in values]
             old_id, new_id = (o or {}).get("part"), (n or {}).get("part")
             if old_id == new_id and not values:
                 continue

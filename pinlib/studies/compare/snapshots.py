@@ -151,14 +151,52 @@ def _device_rails(design) -> dict[str, dict]:
     return rails
 
 
+def _pins_used(bus, device) -> set[str] | None:
+    """The pins of ``device`` that ``bus`` connects: those whose function is one of the
+    bus's signals (an SPI bus's routed lines only), a GPIO line's pin; None where that is
+    not worked out (a bridging part's sides)."""
+    from pinlib.core.protocols import protocol
+
+    part = device.part
+    if device.is_bridge:
+        return None
+    proto = protocol(bus.protocol)
+    if bus.protocol == "gpio":
+        from pinlib.engines.pushpull import gpio_pin
+
+        got = set()
+        for sig in bus.lines:
+            try:
+                pin = gpio_pin(device, sig, len(bus.lines))
+            except Exception:  # the engine names a bad pin; here nothing is hidden
+                return None
+            if pin is not None:
+                got.add(pin[0])
+        return got
+    if proto.open_drain:
+        functions = set(proto.functions)
+    else:
+        functions = {proto.function(sig) for sig in bus.lines}
+    return {name for name, pin in part.pins.items() if pin.function in functions}
+
+
 def _parts_section(design) -> dict[str, dict]:
     library = design.library
     design_dir = design.path.parent if design.path else None
     rails = _device_rails(design)
     parts: dict[str, dict] = {}
+    # the pins no bus connects, by device (a device on several buses: on none of them)
+    unused: dict[str, set] = {}
+    known_all: set = set()
     for bus in design.buses:
         for d in bus.devices:
             entry = parts.get(d.ref)
+            used = _pins_used(bus, d)
+            if used is None:
+                unused.pop(d.ref, None)
+                known_all.add(d.ref)
+            elif d.ref not in known_all:
+                unused[d.ref] = unused.get(d.ref, set(d.part.pins)) - used
             if entry is not None:
                 if bus.id not in entry["buses"]:
                     entry["buses"].append(bus.id)
@@ -180,6 +218,8 @@ def _parts_section(design) -> dict[str, dict]:
             entry["rails"] = {("" if k is None else k): v for k, v in rail.items()}
             entry["values"] = part_values(d.part, rail, library)
             parts[d.ref] = entry
+    for ref, pins in unused.items():
+        parts[ref]["unconnected"] = sorted(pins)
     return parts
 
 

@@ -10,9 +10,11 @@ from dataclasses import field
 
 import numpy as np
 
+from pinlib.core.labels import study_row_label
 from pinlib.core.progress import progress_bar
 from pinlib.core.protocols import PUSH_PULL_PROTOCOLS
 from pinlib.core.valueclass import value_class
+from pinlib.core.wrapping import NBSP
 from pinlib.engines import ppbatch as ppb
 from pinlib.engines import ppworst as ppw
 from pinlib.engines.memo import run_scope
@@ -71,6 +73,11 @@ class CornerCheck:
     nominal_margin: float | None = None
     margin_unit: str | None = None
 
+    @property
+    def label(self) -> str:
+        """:attr:`name` for people: its check id as its label (``flash CIPO setup U7``)."""
+        return study_row_label(self.name, self.id)
+
     def to_json(self) -> dict:
         return {"name": self.name, "bus": self.bus, "segment": self.segment,
                 "signal": self.signal, "id": self.id, "unit": self.unit, "source": self.source,
@@ -112,11 +119,13 @@ class CornersResult:
         shown = rows[:limit] if limit else rows
         if shown:
             lines.append("  lowest margins at their worst corners:")
-            w = max(len(c.name) for c in shown)
+            w = max(len(c.label) for c in shown)
             for c in shown:
-                corner = ", ".join(f"{n} {e}" for n, e, _ in c.corner)
+                # a parameter and its end, and "at" with the first, wrap as one word
+                corner = ", ".join(f"{n} {e}".replace(" ", NBSP) for n, e, _ in c.corner)
                 margin = _fmt_margin(c.margin, c.margin_unit)
-                lines.append(f"    {c.status:<4}  {c.name:<{w}}  {margin:>8}  at {corner}")
+                lines.append(f"    {c.status.upper():<4}  {c.label:<{w}}  {margin:>8}  "
+                             f"at{NBSP}{corner}")
             if len(shown) < len(rows):
                 lines.append(f"    … {len(rows) - len(shown)} more (JSON lists every check)")
         fixed = len(self.checks) - len(rows)

@@ -7,6 +7,7 @@ from dataclasses import field
 
 import numpy as np
 
+from pinlib.core.labels import study_row_label
 from pinlib.core.valueclass import value_class
 from pinlib.model.result import json_number, margin_order, signed_margin_text
 from pinlib.studies.whatif.sensitivity import SENSITIVITY_FLOOR
@@ -83,6 +84,11 @@ class McCheck:
     sampled: int | None = None
     histogram: MarginHistogram | None = None
     margin_unit: str | None = None
+
+    @property
+    def label(self) -> str:
+        """:attr:`name` for people: its check id as its label (``flash CIPO setup U7``)."""
+        return study_row_label(self.name, self.id)
 
     @property
     def complete(self) -> bool:
@@ -205,13 +211,13 @@ class McResult:
             lines.append("  checks with the fewest passing boards and the lowest margins (pass "
                          "fraction, a warning passing; lowest margin; boards that warn; "
                          "most sensitive to):")
-            w = max(len(c.name) for c in shown)
+            w = max(len(c.label) for c in shown)
             for c in shown:
                 sens = c.sensitivity_text()
                 # a rule of thumb's check warns below its limit: 100 % passing beside a
                 # margin of -89 % says so, or it reads as a contradiction
                 warned = f"warns on {c.warns}; " if c.warns else ""
-                lines.append(f"    {c.name:<{w}}  {_pct(c.passes):<34} "
+                lines.append(f"    {c.label:<{w}}  {_pct(c.passes):<34} "
                              f"min {_fmt_margin(c.margin_quantiles((0.0,))[0], c.margin_unit):>8}  "
                              f"{warned}{sens}")
             if len(shown) < len(rows):
