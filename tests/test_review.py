@@ -973,3 +973,23 @@ def test_a_budget_with_a_requirement_without_time_is_drawn_without_it():
     assert "cipo-setup U2" in chart.caption and "never crosses" in chart.caption
     md, _ = built.markdown()
     assert not re.search(r"\bnan\b", md)
+
+
+def test_the_report_budget_chart_writes_the_checks_worst_corner_margin():
+    # reproducer (tests/data/spi-length-tolerance.toml, invented): CIPO setup passes at
+    # the nominal 80 cm and fails at +15 % length.  The report's budget chart wrote only
+    # the nominal board's margin, in the pass colour, beside a checks table that fails;
+    # the workbench's chart writes the worst corner's too (TimingBudgetData.worst).
+    from pinlib.core.quantity import format_si
+
+    design = load_design(ROOT / "tests" / "data" / "spi-length-tolerance.toml")
+    result = check_design(design)
+    cipo = next(c for c in result.bus("link").checks if c.id == "cipo-setup")
+    assert cipo.status == "fail" and cipo.details.get("corner")
+    built = review.build_review(design, result)
+    chart = next(c for c in built.all_charts() if c.kind == "timing-budget")
+    assert chart.svg is not None, chart.error
+    worst = format_si(cipo.value - cipo.limit, "s")   # the checks table's figure
+    assert worst.startswith("-")
+    assert f"worst corner {worst}" in html.unescape(chart.svg)
+    assert "worse corner of the tolerances" in chart.caption
