@@ -993,3 +993,30 @@ def test_the_report_budget_chart_writes_the_checks_worst_corner_margin():
     assert worst.startswith("-")
     assert f"worst corner {worst}" in html.unescape(chart.svg)
     assert "worse corner of the tolerances" in chart.caption
+
+
+def test_the_changed_checks_table_names_each_check_by_its_label(tmp_path):
+    # reproducer: with U4 swapped for the legacy 5 V expander (a built-in generic class)
+    # the report's "Checks whose status changed" table showed raw ids (v-oh,
+    # noise-margin-high, device-speed) where every other table, and the text change list,
+    # shows the check's label (VOH, Noise margin high, Device speed)
+    from pinlib.core.labels import check_label
+
+    board = tmp_path / "board.toml"
+    board.write_text(DEMO.read_text(encoding="utf-8"), encoding="utf-8")
+    before = load_design(board)
+    save_snapshot(before, check_design(before))
+    board.write_text(board.read_text(encoding="utf-8").replace(
+        'part = "eeprom-i2c"', 'part = "io-expander-legacy-5v"', 1), encoding="utf-8")
+    after = load_design(board)
+    result = check_design(after)
+    changes = compare_with_snapshot(after, result)
+    assert changes is not None and changes.status_changes
+    page = review.render_html(after, result, changes=changes)
+    table = page[page.index("<h3>Checks whose status changed</h3>"):]
+    table = table[:table.index("</table>")]
+    for c in changes.status_changes:
+        assert check_label(c.check) != c.check
+        assert f'<td title="{html.escape(c.check)}">{html.escape(check_label(c.check))}</td>' \
+            in table
+        assert f"<code>{html.escape(c.check)}</code>" not in table

@@ -337,7 +337,8 @@ class _Html:
                 limit_s = "" if isinstance(limit, bool) or limit is None else \
                     format_figure(limit, c.unit)
                 self.w(f'<tr class="r-{c.new or "fail"}"><td>{_e(c.path)}</td>'
-                       f"<td><code>{_e(c.check)}</code></td><td>{_e(subj)}</td>"
+                       f'<td title="{_e(c.check)}">{_e(check_label(c.check))}</td>'
+                       f"<td>{_e(subj)}</td>"
                        f"<td>{before}</td><td>{after}</td><td class=\"num\">{_e(value)}</td>"
                        f'<td class="num">{_e(limit_s)}</td><td class="src">{_e(c.source)}'
                        "</td></tr>")
