@@ -39,6 +39,7 @@ import pytest
 from pngcheck import png_pixels
 
 from pinlib.cli import main
+from pinlib.core.labels import sampled_check_label
 from pinlib.engines.dispatch import check_design
 from pinlib.model.design import load_design
 from pinlib.model.result import CAUTION
@@ -714,8 +715,12 @@ def test_command_with_monte_carlo(tmp_path, capsys):
     assert len(hist) == min(review.MC_CHARTS, len(varying))
     assert all(b.count("<svg") == 1 for b in hist)
     for c in varying:  # the same seed gives the same boards: the table matches the run
-        assert f"<td>{html.escape(c.name)}</td><td class=\"num\">{c.passes.fraction:.2%}</td>" \
+        shown = sampled_check_label(c.name, c.id)    # the check by its label, as elsewhere
+        assert f"<td>{html.escape(shown)}</td><td class=\"num\">{c.passes.fraction:.2%}</td>" \
             in section
+    # no raw check id where the report names a check
+    assert "<td>sensors/main-3v3 SDA Pull-up window Rp(min)…Rp(max)</td>" in section
+    assert "pullup-window</td>" not in section and "Margin of pullup-window" not in section
     assert "seed 5" in section
 
 
@@ -730,8 +735,9 @@ def test_review_of_a_monte_carlo_run(demo):
     for c in mc.checks:
         if c.varies:
             lo, hi = c.passes.interval
-            assert f"| {review._m(c.name)} | {c.passes.fraction:.2%} | {lo:.2%} to {hi:.2%} |" \
-                in shown
+            name = review._m(sampled_check_label(c.name, c.id))
+            assert f"| {name} | {c.passes.fraction:.2%} | {lo:.2%} to {hi:.2%} |" in shown
+    assert "| flash COPI setup U7 |" in shown and "copi-setup U7 |" not in shown
     assert shown.count("data:image/svg+xml") == min(
         review.MC_CHARTS, sum(1 for c in mc.checks if c.varies))
 
