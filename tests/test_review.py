@@ -1026,3 +1026,16 @@ def test_the_changed_checks_table_names_each_check_by_its_label(tmp_path):
         assert f'<td title="{html.escape(c.check)}">{html.escape(check_label(c.check))}</td>' \
             in table
         assert f"<code>{html.escape(c.check)}</code>" not in table
+
+
+def test_notes_name_a_figure_by_its_label(built):
+    # the SPI engine's notes start with the figure they explain, by its JSON id
+    # ("max_clock 24 MHz: ...", "cipo_setup_margin: not computed ..."); the report's
+    # figures tables call it "Highest clock", and so do its notes
+    page = built.html()
+    md, _ = built.markdown()
+    for text in (page, md):
+        assert "Highest clock 24 MHz: the highest clock" in text
+        assert "Highest clock, edge rule of thumb 45 MHz: the highest clock" in text
+        assert "CIPO setup margin: not computed" in text
+        assert not re.search(r"\b(max_clock|max_clock_edge_rule|cipo_setup_margin)\b", text)

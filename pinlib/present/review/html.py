@@ -8,7 +8,7 @@ import re
 
 from pinlib import __version__
 from pinlib.core import messages as M
-from pinlib.core.labels import check_label
+from pinlib.core.labels import check_label, note_label
 from pinlib.model.result import CAUTION, BusResult, Group
 from pinlib.present.review.draw import ReviewChart, _slug
 from pinlib.present.review.montecarlo import _MC_HEAD, _mc_cells, _mc_summary
@@ -219,7 +219,7 @@ class _Html:
             self.w("</div>")
         if g.notes:
             self.w(f"<{h}>Notes</{h}>", '<ul class="notes">',
-                   *[f"<li>{_e(n)}</li>" for n in g.notes], "</ul>")
+                   *[f"<li>{_e(note_label(n))}</li>" for n in g.notes], "</ul>")
 
     def chart(self, chart: ReviewChart):
         self.w(f'<figure id="chart-{_e(chart.key)}" data-chart="{_e(chart.kind)}">')

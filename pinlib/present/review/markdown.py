@@ -8,7 +8,7 @@ import re
 
 from pinlib import __version__
 from pinlib.core import messages as M
-from pinlib.core.labels import check_label
+from pinlib.core.labels import check_label, note_label
 from pinlib.model.result import CAUTION, BusResult, Group
 from pinlib.present.review.draw import ReviewChart
 from pinlib.present.review.montecarlo import _MC_HEAD, _mc_cells, _mc_summary
@@ -185,7 +185,7 @@ class _Markdown:
             for chart in charts:
                 self.chart(chart)
         if g.notes:
-            self.w(f"{h} Notes", "", *[f"- {_mt(n)}" for n in g.notes], "")
+            self.w(f"{h} Notes", "", *[f"- {_mt(note_label(n))}" for n in g.notes], "")
 
     def chart(self, chart: ReviewChart):
         if chart.svg is None:
