@@ -6,6 +6,7 @@ noise waveforms."""
 from __future__ import annotations
 
 from pinlib.core.errors import PinlibError
+from pinlib.core.labels import path_label
 from pinlib.model.result import BusResult
 from pinlib.present.review.draw import ReviewChart, _draw, _f
 
@@ -123,7 +124,8 @@ def _budget_chart(bus, design, result: BusResult, keys, charts):
         charts.setdefault(("bus", bus.id), []).append(
             ReviewChart(key, "timing-budget", title, "", None, err.message))
         return
-    missing = "".join(f" Not drawn: {path} ({why})." for path, why in tb.not_drawn.items())
+    missing = "".join(f" Not drawn: {path_label(path)} ({why})."
+                      for path, why in tb.not_drawn.items())
     if not tb.rows:
         charts.setdefault(("bus", bus.id), []).append(
             ReviewChart(key, "timing-budget", title, "", None,
