@@ -201,7 +201,7 @@ def test_figures_under_readable_labels_each_quantity_once(page, built, demo):
     every = sum(len(g.figures) for g in groups)
     assert 0 < len(shown) < every  # the demo repeats some quantities
     md_rows = re.findall(r"^\| (?!Figure \|)(?!---)([^|]+) \| ([^|]+) \|$", md, re.M)
-    html_rows = re.findall(r"<div><dt>(.*?)</dt><dd>(.*?)</dd></div>", page)
+    html_rows = re.findall(r'<div><dt>(.*?)</dt><dd(?: class="words")?>(.*?)</dd></div>', page)
     assert len(md_rows) == len(html_rows) == len(shown)
     for (name, f), (md_label, md_value), (h_label, h_value) in zip(
             shown, md_rows, html_rows, strict=True):
@@ -1041,3 +1041,47 @@ def test_notes_name_a_figure_by_its_label(built):
         assert "Highest clock, edge rule of thumb 45 MHz: the highest clock" in text
         assert "CIPO setup margin: not computed" in text
         assert not re.search(r"\b(max_clock|max_clock_edge_rule|cipo_setup_margin)\b", text)
+
+
+#: The page's own width overflowed by: every element whose box passes the viewport's right
+#: edge, unless a box around it scrolls sideways (a wide table in its own scroller).
+_OVERFLOW_JS = """() => {
+  const W = document.documentElement.clientWidth, out = [];
+  const scrolls = e => { for (let p = e.parentElement; p; p = p.parentElement) {
+      const o = getComputedStyle(p).overflowX;
+      if (o === 'auto' || o === 'scroll' || o === 'hidden') return true; } return false; };
+  for (const e of document.querySelectorAll('body *')) {
+    if (e.closest('.visually-hidden')) continue;
+    const r = e.getBoundingClientRect();
+    if (r.width && r.right > W + 1 && !scrolls(e))
+      out.push(e.tagName + ' ' + Math.round(r.right) + ' ' + e.textContent.slice(0, 60));
+  }
+  return {page: document.documentElement.scrollWidth, width: W, out: out.slice(0, 10)};
+}"""
+
+
+@pytest.mark.browser
+@needs_chromium
+@pytest.mark.parametrize("width, media", [(420, "screen"), (1400, "screen"), (718, "print")])
+def test_nothing_passes_the_page_edge(page, tmp_path, width, media):
+    # reproducer: at 420 px the checks tables made the whole page scroll sideways (716 px
+    # wide), and printed on A4 (718 px, print media) the SPI bus's figure "CIPO setup
+    # margin: not computed (signal not routed or data missing)", kept on one line, passed
+    # the page's edge (757 px), where a PDF cuts it off
+    pytest.importorskip("playwright.sync_api")
+    from browser import launch_chromium
+    from playwright.sync_api import sync_playwright
+
+    report = tmp_path / "review.html"
+    report.write_text(page, encoding="utf-8")
+    with sync_playwright() as pw:
+        browser = launch_chromium(pw)
+        try:
+            tab = browser.new_page(viewport={"width": width, "height": 900})
+            tab.goto(report.as_uri())
+            tab.emulate_media(media=media)
+            got = tab.evaluate(_OVERFLOW_JS)
+        finally:
+            browser.close()
+    assert got["out"] == [], got
+    assert got["page"] <= got["width"], got
