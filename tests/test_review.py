@@ -1085,3 +1085,25 @@ def test_nothing_passes_the_page_edge(page, tmp_path, width, media):
             browser.close()
     assert got["out"] == [], got
     assert got["page"] <= got["width"], got
+
+
+def test_the_markdown_change_list_reads_at_80_columns(tmp_path):
+    # reproducer: the change list's fenced block held each change on one line (300 and
+    # more characters: check, values, limit and source), which a code block neither wraps
+    # in a viewer nor in a terminal; it now reads as `pinlib check` prints it at 80
+    board = tmp_path / "board.toml"
+    board.write_text(DEMO.read_text(encoding="utf-8"), encoding="utf-8")
+    before = load_design(board)
+    save_snapshot(before, check_design(before))
+    board.write_text(board.read_text(encoding="utf-8").replace(
+        'part = "eeprom-i2c"', 'part = "io-expander-legacy-5v"', 1), encoding="utf-8")
+    after = load_design(board)
+    result = check_design(after)
+    changes = compare_with_snapshot(after, result)
+    md = review.render_markdown(after, result, changes=changes)
+    block = md[md.index("## Changes against the snapshot"):].split("```")[1]
+    lines = block.strip("\n").split("\n")
+    assert lines[0].startswith("Changes against the snapshot")
+    assert max(len(ln) for ln in lines) <= 80, max(lines, key=len)
+    # every word of the list is still there, in order
+    assert block.split() == changes.format_text().split()

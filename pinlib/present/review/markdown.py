@@ -10,6 +10,7 @@ from pinlib import __version__
 from pinlib.core import messages as M
 from pinlib.core.labels import check_label, note_label
 from pinlib.model.result import CAUTION, BusResult, Group
+from pinlib.present.report import fit
 from pinlib.present.review.draw import ReviewChart
 from pinlib.present.review.montecarlo import _MC_HEAD, _mc_cells, _mc_summary
 from pinlib.present.review.parts import (
@@ -45,6 +46,10 @@ _MD_INLINE = str.maketrans({**{c: "\\" + c for c in "\\`*_[]|~"},
 # numbered item (1. x): each only with the space or line end that makes it one
 _MD_LINE_START = re.compile(r"^(?:(#{1,6}|[+-])(?=\s|$)|([=-])(?=[=\-\s]*$)"
                             r"|(\d{1,9})([.)])(?=\s|$))")
+
+
+#: The width of the Markdown's preformatted text (the change list), in characters.
+TEXT_WIDTH = 80
 
 
 def _mt(text) -> str:
@@ -239,4 +244,6 @@ class _Markdown:
             self.w(_with_code(M.NO_SNAPSHOT_TO_COMPARE, design=str(path) if path else "DESIGN"),
                    "")
             return
-        self.w(*_fenced(cl.format_text().rstrip("\n")), "")
+        # as `pinlib check` prints it at 80 columns: plain text that reads without a viewer
+        lines = fit(cl.format_text().rstrip("\n").split("\n"), TEXT_WIDTH)
+        self.w(*_fenced("\n".join(lines)), "")
