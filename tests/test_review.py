@@ -1060,10 +1060,38 @@ _OVERFLOW_JS = """() => {
 }"""
 
 
+def _long_words_page(tmp_path) -> str:
+    """The demo's report under a title of one 160-letter word, from a folder whose name is
+    as long (invented): words no line can hold."""
+    folder = tmp_path / ("d" * 160)
+    folder.mkdir()
+    board = folder / "board.toml"
+    text = DEMO.read_text(encoding="utf-8")
+    board.write_text(re.sub(r'(?m)^title = ".*"$', f'title = "{"T" * 160}"', text, count=1),
+                     encoding="utf-8")
+    design = load_design(board)
+    return review.render_html(design, check_design(design))
+
+
+def _long_route_page(tmp_path) -> str:
+    """The report of the routed SPI bus of tests/data (invented) with its tap point renamed
+    at length: a route diagram of some 65 characters, wider than a phone."""
+    board = tmp_path / "route.toml"
+    text = (ROOT / "tests" / "data" / "spi-route.toml").read_text(encoding="utf-8")
+    board.write_text(text.replace('"T1"', '"TAP-NEAR-THE-CONTROLLER-AND-FLASH"'),
+                     encoding="utf-8")
+    design = load_design(board)
+    page = review.render_html(design, check_design(design))
+    assert "└ TAP-NEAR-THE-CONTROLLER-AND-FLASH ─13 cm─ U3" in page
+    return page
+
+
 @pytest.mark.browser
 @needs_chromium
-@pytest.mark.parametrize("width, media", [(420, "screen"), (1400, "screen"), (718, "print")])
-def test_nothing_passes_the_page_edge(page, tmp_path, width, media):
+@pytest.mark.parametrize("width, media, long_words", [
+    (420, "screen", False), (1400, "screen", False), (718, "print", False),
+    (420, "screen", True), (718, "print", True), (420, "screen", "route")])
+def test_nothing_passes_the_page_edge(page, tmp_path, width, media, long_words):
     # reproducer: at 420 px the checks tables made the whole page scroll sideways (716 px
     # wide), and printed on A4 (718 px, print media) the SPI bus's figure "CIPO setup
     # margin: not computed (signal not routed or data missing)", kept on one line, passed
@@ -1073,7 +1101,9 @@ def test_nothing_passes_the_page_edge(page, tmp_path, width, media):
     from playwright.sync_api import sync_playwright
 
     report = tmp_path / "review.html"
-    report.write_text(page, encoding="utf-8")
+    text = (_long_route_page(tmp_path) if long_words == "route" else
+            _long_words_page(tmp_path) if long_words else page)
+    report.write_text(text, encoding="utf-8")
     with sync_playwright() as pw:
         browser = launch_chromium(pw)
         try:

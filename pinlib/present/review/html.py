@@ -39,7 +39,8 @@ _CSS = """\
 :root{--ink:#111;--muted:#4a4a4a;--rule:#c8c8c8;--head:#eef0f2}
 *{box-sizing:border-box}
 body{font-family:"DejaVu Sans","Segoe UI",Roboto,Helvetica,Arial,sans-serif;color:var(--ink);
-background:#fff;margin:0 auto;max-width:1500px;padding:1rem 2rem 3rem;line-height:1.4}
+background:#fff;margin:0 auto;max-width:1500px;padding:1rem 2rem 3rem;line-height:1.4;
+overflow-wrap:break-word}
 h1{font-size:1.6rem;margin:.4rem 0}h2{font-size:1.3rem;margin-top:2.2rem;
 border-bottom:2px solid var(--ink);padding-bottom:.2rem}h3{font-size:1.1rem;margin-top:1.6rem}
 h4{font-size:1rem;margin:1rem 0 .3rem}
@@ -76,11 +77,12 @@ figcaption{font-size:.8rem;color:var(--muted);margin-top:.3rem}
 .notes{font-size:.85rem;color:var(--muted)}
 .none{color:var(--muted);font-style:italic}
 code{font-size:.9em}
+pre{overflow-x:auto;max-width:100%}
 footer{margin-top:3rem;border-top:1px solid var(--rule);color:var(--muted);font-size:.85rem}
 @media screen and (max-width:48rem){body{padding:.6rem .8rem 2rem}
 td.msg,td.src{min-width:15rem}}
 @media print{body{max-width:none;padding:0}figure{break-inside:avoid}
-.scroll{overflow:visible}}
+.scroll,pre{overflow:visible}}
 """
 
 
