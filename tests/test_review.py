@@ -130,7 +130,31 @@ def test_caution_is_at_the_top(page, built):
     assert html.escape(CAUTION) in page[:first_section]
     assert page.index(html.escape(CAUTION)) < page.index("<main>")
     md, _ = built.markdown()
-    assert md.splitlines()[2] == f"> **Caution.** {CAUTION}"
+    lines = md.splitlines()
+    assert lines[2].startswith("> **Caution.** ")
+    quote = [ln for ln in lines[2:lines.index("", 2)]]
+    assert all(ln.startswith("> ") and len(ln) <= 80 for ln in quote)
+    assert " ".join(ln[2:] for ln in quote) == f"**Caution.** {CAUTION}"
+
+
+def _flat(text: str) -> str:
+    """Text with every run of white space one space: Markdown wrapped at 80 columns
+    compared with a one-line text."""
+    return " ".join(text.split())
+
+
+def _md_items(md: str) -> list[str]:
+    """The numbered items of the Markdown (the checks' findings), each on one line."""
+    items: list[str] = []
+    for ln in md.splitlines():
+        m = re.match(r"^\d+\.\s+(.*)$", ln)
+        if m:
+            items.append(m.group(1))
+        elif items and ln.startswith("    ") and ln.strip():
+            items[-1] += " " + ln.strip()
+        elif not ln.strip() and items and not items[-1].endswith("\n"):
+            items[-1] += "\n"
+    return [i.strip() for i in items]
 
 
 def test_every_chart_svg_is_present(page, demo):
@@ -157,7 +181,7 @@ def test_every_check_names_its_source(page, built, demo):
         for _seg, _sig, c in bus.all_checks():
             assert c.source, (bus.id, c.id)
             assert f'<td class="src">{html.escape(c.source)}</td>' in page, (bus.id, c.id)
-            assert review._m(c.source) in md, (bus.id, c.id)
+            assert _flat(review._m(c.source)) in _flat(md), (bus.id, c.id)
             n += 1
     # every check row carries its status as text as well as colour
     rows = re.findall(r'<tr class="r-(pass|warn|fail)"><td><span class="status s-(\w+)">(\w+)<',
@@ -176,14 +200,14 @@ def test_a_fix_only_on_checks_that_fail_or_warn(page, built, demo):
     advised = [c for c in checks if c.status != "pass" and c.fix]
     assert passing and advised  # the demo has both
     md, _ = built.markdown()
-    rows = [r for r in md.splitlines() if r.startswith("| **PASS** |")]
-    assert rows and not any("fix:" in r for r in rows)
+    items = [i for i in _md_items(md) if i.startswith("**PASS**")]   # the findings
+    assert items and not any("fix:" in i for i in items)
     rows = re.findall(r'<tr class="r-pass">.*?</tr>', page, re.S)
     assert rows and not any("fix:" in r for r in rows)
     for c in passing:
-        assert review._m(c.fix) not in md and html.escape(c.fix) not in page
+        assert _flat(review._m(c.fix)) not in _flat(md) and html.escape(c.fix) not in page
     for c in advised:
-        assert review._m(c.fix) in md and html.escape(c.fix) in page
+        assert _flat(review._m(c.fix)) in _flat(md) and html.escape(c.fix) in page
 
 
 def test_figures_under_readable_labels_each_quantity_once(page, built, demo):
@@ -296,7 +320,7 @@ def test_markdown_with_chart_files_and_embedded(built, demo):
     assert all(t.startswith("demo-charts/") and t.endswith(".svg") for t in links)
     assert all(s.startswith("<?xml") and s.count("<svg") == 1 for s in files.values())
     assert "## Parts and the provenance of their values" in md
-    assert review._no_snapshot_text(design) in md
+    assert _flat(review._no_snapshot_text(design)) in _flat(md)
     embedded, none = built.markdown()
     assert none == {}
     uris = re.findall(r"\(data:image/svg\+xml;base64,([A-Za-z0-9+/=]+)\)", embedded)
@@ -1137,3 +1161,36 @@ def test_the_markdown_change_list_reads_at_80_columns(tmp_path):
     assert max(len(ln) for ln in lines) <= 80, max(lines, key=len)
     # every word of the list is still there, in order
     assert block.split() == changes.format_text().split()
+
+
+def test_the_markdown_reads_as_plain_text_at_80_columns(built):
+    # reproducer: every check was one table row of up to 600 characters (its finding and
+    # the source of its limit in cells), the caution, captions and notes one line each;
+    # the checks table now holds the numbers, the findings follow it as a numbered list
+    md, _ = built.markdown("demo-charts")
+    prose = [ln for ln in md.splitlines()
+             if not ln.startswith(("|", "#", "![")) and "`" not in ln]
+    assert prose and max(len(ln) for ln in prose) <= 80, max(prose, key=len)
+    rows = [ln for ln in md.splitlines() if re.match(r"^\| \d+ \| \*\*(PASS|WARN|FAIL)\*\*", ln)]
+    assert rows and all(ln.count(" | ") == 6 for ln in rows)
+    assert max(len(ln) for ln in rows) <= 90
+    # each row's finding under its number
+    items = _md_items(md)
+    assert sum(1 for i in items if re.match(r"\*\*(PASS|WARN|FAIL)\*\* ", i)) == len(rows)
+    assert "1.  **PASS** Bus capacitance, SDA: SDA bus capacitance 105 pF" in md
+
+
+@pytest.mark.parametrize("start", ["- 5 %", "+ 3", "# x", "---", "===", "1. item", "12. x"])
+def test_wrapping_markdown_never_starts_a_block(start):
+    from pinlib.present.review.markdown import _wrapped
+
+    # 77 characters fill the first line to the last column: the marker starts the next
+    text = "abcdefghij " * 6 + "a" * 11 + " " + start + " tail"
+    lines = _wrapped(text, "- ")
+    plain = review._mt(start + " tail")         # the marker, made plain as _mt does
+    assert any(ln.strip() == plain for ln in lines[1:]) or start[0].isdigit(), lines
+    assert len(lines) > 1 and all(len(ln) <= 80 for ln in lines)
+    for ln in lines[1:]:
+        body = ln.strip()
+        # a list item, a heading, an ordered item; a rule or setext underline (only = or -)
+        assert not re.match(r"^(?:[-+#]|\d+[.)])(?:\s|$)|^[=-]+\s*$", body), ln
