@@ -1194,3 +1194,26 @@ def test_wrapping_markdown_never_starts_a_block(start):
         body = ln.strip()
         # a list item, a heading, an ordered item; a rule or setext underline (only = or -)
         assert not re.match(r"^(?:[-+#]|\d+[.)])(?:\s|$)|^[=-]+\s*$", body), ln
+
+
+def test_markdown_parts_tables_cite_each_source_once_by_number(built, demo):
+    # reproducer: each part value's row carried its source in full (up to 130
+    # characters, the same source on many rows of a part), rows of 250 characters; the
+    # table now cites [n] and the part's sources follow it, each once, wrapped at 80
+    design, result = demo
+    md, _ = built.markdown("demo-charts")
+    part = md[md.index("### U1: mcu-3v3"):]
+    part = part[:part.index("\n### ", 1)]
+    rows = [ln for ln in part.splitlines() if ln.startswith("| `")]
+    assert rows and all(re.search(r"\| (\[\d+\]|—) \|", ln) for ln in rows)
+    cited = {int(n) for ln in rows for n in re.findall(r"\| \[(\d+)\] \|", ln)}
+    listed = re.findall(r"^- \[(\d+)\] ", part, re.M)
+    assert sorted(int(n) for n in listed) == sorted(cited) == list(range(1, len(cited) + 1))
+    sources = {e["source"] for e in snapshot(design, result)["parts"]["U1"]["values"].values()
+               if e.get("source")}
+    assert len(listed) == len(sources)
+    for src in sources:
+        assert _flat(review._m(src)) in _flat(part)
+    notes = [ln for ln in part.splitlines() if not ln.startswith(("|", "#"))]
+    assert max(len(ln) for ln in notes) <= 80
+    assert max(len(ln) for ln in rows) < 120

@@ -257,11 +257,22 @@ class _Markdown:
             for k, v in _part_facts(p):
                 self.w(*_wrapped(f"{k}: {_mt(v)}", "- "))
             self.w("")
-            rows = [[_code(value_label(key)), _m(_part_value(e)), _m(_typ(e)), _m(_basis(e)),
-                     _m(e.get("source", "—")), _m(_origin(e, p.get("part", "")))]
-                    for key, e in (p.get("values") or {}).items()]
+            # each source once, cited by number: a part's values share a few sources, and
+            # a row that carried its own in full was 250 characters wide
+            cite: dict[str, int] = {}
+            rows = []
+            for key, e in (p.get("values") or {}).items():
+                src = e.get("source")
+                ref_text = f"[{cite.setdefault(src, len(cite) + 1)}]" if src else "—"
+                rows.append([_code(value_label(key)), _m(_part_value(e)), _m(_typ(e)),
+                             _m(_basis(e)), ref_text, _m(_origin(e, p.get("part", "")))])
             self.w(*_table(["Value", "Resolved", "Typical", "Basis", "Source", "Set in"],
                            rows))
+            if cite:
+                self.w("Sources:", "")
+                for src, n in cite.items():
+                    self.w(*_wrapped(_mt(src), f"- [{n}] ", "  "))
+                self.w("")
 
     def changes(self):
         cl = self.r.changes
