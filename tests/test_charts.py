@@ -1069,3 +1069,42 @@ def test_cached_compile_of_a_chart_without_data_rows():
     direct = charts.to_svg(spec, cache=False)
     assert charts.to_svg(spec) == direct
     assert charts.to_svg(spec) == direct
+
+
+def test_a_title_word_wider_than_the_chart_is_broken_to_fit():
+    # reproducer: a report on a bus whose id is long (invented design) titled its pull-up
+    # window "Pull-up window: a-very-long-bus-identifier-for-the-sensor-and-memory-bus-on-
+    # the-main-board SDA"; the id stayed whole on its line and the chart cut it off at
+    # its right edge ("main-board" lost)
+    from pinlib.present.charts.style import _wrap, text_width
+
+    bus = "a-very-long-bus-identifier-for-the-sensor-and-memory-bus-on-the-main-board"
+    title = f"Pull-up window: {bus} SDA"
+    room = 470.0
+    lines = _wrap(title, 13, room, bold=True)
+    assert all(text_width(ln, 13, bold=True) <= room for ln in lines), lines
+    assert "".join(lines).replace(" ", "") == title.replace(" ", "")
+    # broken after a hyphen, not inside a word
+    assert all(ln.endswith("-") for ln in lines if bus.startswith(ln) or ln in bus[:-1])
+    # a word with no place to break is cut where it must be
+    solid = "x" * 200
+    got = _wrap(solid, 11, 100.0)
+    assert len(got) > 1 and "".join(got) == solid
+    assert all(text_width(ln, 11) <= 100.0 for ln in got)
+    # text that fits is as before: broken at spaces only
+    assert _wrap("rise 10-90 and fall", 11, 1000.0) == ["rise 10-90 and fall"]
+    got = _wrap("tr ≤ 300 ns, rise = 0.8473·Rp·Cb", 11, 90.0)
+    assert len(got) > 1 and " ".join(got) == "tr ≤ 300 ns, rise = 0.8473·Rp·Cb"
+
+
+def test_a_long_bus_id_keeps_the_chart_title_inside_the_chart():
+    bus = "a-very-long-bus-identifier-for-the-sensor-and-memory-bus-on-the-main-board"
+    from pinlib.present.charts.style import text_width
+
+    chart = charts.pullup_window(np.array([10e-12, 100e-12]), 1e3, np.array([3e4, 3e3]),
+                                 chosen_cb=50e-12, chosen_rp=2e3,
+                                 title=f"Pull-up window: {bus} SDA")
+    spec = chart.to_dict()
+    text = spec["title"]["text"]
+    assert "main-board" in "".join(text)
+    assert all(text_width(ln, 13, bold=True) <= spec["width"] - 10 for ln in text), text

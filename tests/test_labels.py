@@ -17,9 +17,10 @@ from pinlib.core.labels import (
     check_label,
     figure_label,
     humanize,
+    note_label,
+    sampled_check_label,
     short_label,
     shown_figures,
-    study_row_label,
 )
 from pinlib.engines.dispatch import check_file
 
@@ -104,16 +105,33 @@ def test_a_timing_path_is_named_as_the_checks_table_names_it():
     assert path_label("f_max U1") == "f_max U1"  # no check id: as written
 
 
-@pytest.mark.parametrize("name, check_id, label", [
-    ("flash cipo-setup U7", "cipo-setup", "flash CIPO setup U7"),
-    ("sensors/main-3v3 SCL rise-time", "rise-time", "sensors/main-3v3 SCL Rise time"),
-    ("flash cipo overshoot U1", "overshoot", "flash cipo Overshoot U1"),
-    # a bus named like a check id is never taken for it
-    ("overshoot sclk overshoot U3", "overshoot", "overshoot sclk Overshoot U3"),
-    ("power supply-range #2", "supply-range", "power Supply range #2"),
-    ("power odd", "supply-range", "power odd"),
+@pytest.mark.parametrize("name, check_id, shown", [
+    # the names a Monte Carlo run gives its checks (studies.whatif: open-drain, push-pull,
+    # coupling), as the report's table and histograms show them
+    ("sensors/main-3v3 SDA pullup-window", "pullup-window",
+     "sensors/main-3v3 SDA Pull-up window Rp(min)…Rp(max)"),
+    ("flash sclk overshoot U7", "overshoot", "flash SCLK Overshoot U7"),
+    ("flash copi-setup U7", "copi-setup", "flash COPI setup U7"),
+    ("power supply-range", "supply-range", "power Supply range"),
+    ("sensors/sensor-1v8 bridge-gate-drive Q1", "bridge-gate-drive",
+     "sensors/sensor-1v8 Translator gate drive Q1"),
+    ("sensors.scl<-display.sclk SCL near end held low crosstalk-low", "crosstalk-low",
+     "sensors.scl<-display.sclk SCL near end Crosstalk held low"),
+    ("link v-ol #2", "v-ol", "link VOL #2"),
+    ("a name without its id", "v-oh", "a name without its id"),
 ])
-def test_a_studys_check_name_reads_with_its_label(name, check_id, label):
-    # Once the corners and Monte Carlo rows showed the raw id ("flash cipo-setup U7")
-    # where every other table shows the check's label.
-    assert study_row_label(name, check_id) == label
+def test_a_sampled_check_is_named_by_its_label(name, check_id, shown):
+    assert sampled_check_label(name, check_id) == shown
+
+
+def test_a_note_that_starts_with_a_figure_id_starts_with_its_label():
+    # the SPI engine's notes start with the figure they explain (ids kept in the JSON)
+    assert note_label("max_clock 24 MHz: the highest clock") == \
+        "Highest clock 24 MHz: the highest clock"
+    assert note_label("max_clock: none, no clock satisfies f_max U1") == \
+        "Highest clock: none, no clock satisfies f_max U1"
+    assert note_label("max_clock_edge_rule 45 MHz: x") == \
+        "Highest clock, edge rule of thumb 45 MHz: x"
+    assert note_label("cipo_setup_margin: not computed") == "CIPO setup margin: not computed"
+    assert note_label("SPI mode 0 (CPOL 0, CPHA 0)") == "SPI mode 0 (CPOL 0, CPHA 0)"
+    assert note_label("overshoot 881 mV and undershoot") == "overshoot 881 mV and undershoot"

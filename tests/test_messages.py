@@ -2948,7 +2948,7 @@ def _(env):
 
 
 @case("CHART_NOT_DRAWN_WITH_TITLE", lambda: _markdown_text(M.CHART_NOT_DRAWN_WITH_TITLE.format(
-    title="Monte Carlo: rise-time", error=_histogram_refusal())))
+    title="Monte Carlo: Rise time", error=_histogram_refusal())))  # the check by its label
 def _(env):
     return _review(env, "render_markdown", [MC_REFUSED])
 

@@ -10,6 +10,7 @@ limit.
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import replace
 from pathlib import Path
 
@@ -494,3 +495,23 @@ def test_a_status_that_changes_makes_its_cell_rough_on_any_axis():
     assert list(now) == [1]
     _, now, _ = tablegrid.rough_spans(g, smooth, 2e-3, [], np.zeros((2, 3)))
     assert not now.size
+
+
+@pytest.mark.parametrize("max_error, shown", [
+    (8.2e-5, "within 0.0082 percentage points of margin"),   # the demo's flash bus
+    (3.0e-3, "within 0.3 percentage points of margin"),
+    (1.5, "within 150 percentage points of margin"),
+    (1.0e-9, "within 0.001 percentage points of margin"),    # below it: at most that
+    (0.0, "within 0.001 percentage points of margin"),
+])
+def test_the_table_note_gives_its_agreement_without_an_exponent(max_error, shown):
+    # reproducer: the Monte Carlo note read "agree with the engine within 8.2e-05 of
+    # margin", an exponent and no unit, in pinlib check and in the report
+    from types import SimpleNamespace
+
+    axis = SimpleNamespace(kind="length", lo=0.9, hi=1.1)
+    grid = SimpleNamespace(axes=[axis], evaluations=41, max_error=max_error,
+                           has_jumps=lambda: False)
+    note = ppb._table_note(SimpleNamespace(id="flash"), grid)
+    assert shown in note
+    assert not re.search(r"\de-?\d", note)

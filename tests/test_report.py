@@ -301,3 +301,12 @@ def test_a_relation_and_a_sign_stay_with_their_number_and_the_clock_names_its_ch
     assert "set by CIPO setup U2" in text and "cipo-setup" not in text
     assert wrap("so the margin < -999 % here", 20) == ["so the", "    margin < -999 %",
                                                         "    here"]
+
+
+def test_detail_notes_name_a_figure_by_its_label(monkeypatch, capsys):
+    # the SPI notes start with their figure's JSON id ("max_clock 24 MHz: ..."); --detail
+    # lists the figure above as "Highest clock" and its notes say the same
+    _, out = _run(monkeypatch, capsys, 200, "--detail")
+    assert "- highest clock 24 MHz: what the timing budget" in out  # the engine's words
+    assert "- CIPO setup margin: not computed" in out
+    assert not re.search(r"\b(max_clock|max_clock_edge_rule|cipo_setup_margin)\b", out)

@@ -39,6 +39,7 @@ import pytest
 from pngcheck import png_pixels
 
 from pinlib.cli import main
+from pinlib.core.labels import sampled_check_label
 from pinlib.engines.dispatch import check_design
 from pinlib.model.design import load_design
 from pinlib.model.result import CAUTION
@@ -129,7 +130,31 @@ def test_caution_is_at_the_top(page, built):
     assert html.escape(CAUTION) in page[:first_section]
     assert page.index(html.escape(CAUTION)) < page.index("<main>")
     md, _ = built.markdown()
-    assert md.splitlines()[2] == f"> **Caution.** {CAUTION}"
+    lines = md.splitlines()
+    assert lines[2].startswith("> **Caution.** ")
+    quote = [ln for ln in lines[2:lines.index("", 2)]]
+    assert all(ln.startswith("> ") and len(ln) <= 80 for ln in quote)
+    assert " ".join(ln[2:] for ln in quote) == f"**Caution.** {CAUTION}"
+
+
+def _flat(text: str) -> str:
+    """Text with every run of white space one space: Markdown wrapped at 80 columns
+    compared with a one-line text."""
+    return " ".join(text.split())
+
+
+def _md_items(md: str) -> list[str]:
+    """The numbered items of the Markdown (the checks' findings), each on one line."""
+    items: list[str] = []
+    for ln in md.splitlines():
+        m = re.match(r"^\d+\.\s+(.*)$", ln)
+        if m:
+            items.append(m.group(1))
+        elif items and ln.startswith("    ") and ln.strip():
+            items[-1] += " " + ln.strip()
+        elif not ln.strip() and items and not items[-1].endswith("\n"):
+            items[-1] += "\n"
+    return [i.strip() for i in items]
 
 
 def test_every_chart_svg_is_present(page, demo):
@@ -156,7 +181,7 @@ def test_every_check_names_its_source(page, built, demo):
         for _seg, _sig, c in bus.all_checks():
             assert c.source, (bus.id, c.id)
             assert f'<td class="src">{html.escape(c.source)}</td>' in page, (bus.id, c.id)
-            assert review._m(c.source) in md, (bus.id, c.id)
+            assert _flat(review._m(c.source)) in _flat(md), (bus.id, c.id)
             n += 1
     # every check row carries its status as text as well as colour
     rows = re.findall(r'<tr class="r-(pass|warn|fail)"><td><span class="status s-(\w+)">(\w+)<',
@@ -175,14 +200,14 @@ def test_a_fix_only_on_checks_that_fail_or_warn(page, built, demo):
     advised = [c for c in checks if c.status != "pass" and c.fix]
     assert passing and advised  # the demo has both
     md, _ = built.markdown()
-    rows = [r for r in md.splitlines() if r.startswith("| **PASS** |")]
-    assert rows and not any("fix:" in r for r in rows)
+    items = [i for i in _md_items(md) if i.startswith("**PASS**")]   # the findings
+    assert items and not any("fix:" in i for i in items)
     rows = re.findall(r'<tr class="r-pass">.*?</tr>', page, re.S)
     assert rows and not any("fix:" in r for r in rows)
     for c in passing:
-        assert review._m(c.fix) not in md and html.escape(c.fix) not in page
+        assert _flat(review._m(c.fix)) not in _flat(md) and html.escape(c.fix) not in page
     for c in advised:
-        assert review._m(c.fix) in md and html.escape(c.fix) in page
+        assert _flat(review._m(c.fix)) in _flat(md) and html.escape(c.fix) in page
 
 
 def test_figures_under_readable_labels_each_quantity_once(page, built, demo):
@@ -200,7 +225,7 @@ def test_figures_under_readable_labels_each_quantity_once(page, built, demo):
     every = sum(len(g.figures) for g in groups)
     assert 0 < len(shown) < every  # the demo repeats some quantities
     md_rows = re.findall(r"^\| (?!Figure \|)(?!---)([^|]+) \| ([^|]+) \|$", md, re.M)
-    html_rows = re.findall(r"<div><dt>(.*?)</dt><dd>(.*?)</dd></div>", page)
+    html_rows = re.findall(r'<div><dt>(.*?)</dt><dd(?: class="words")?>(.*?)</dd></div>', page)
     assert len(md_rows) == len(html_rows) == len(shown)
     for (name, f), (md_label, md_value), (h_label, h_value) in zip(
             shown, md_rows, html_rows, strict=True):
@@ -295,7 +320,7 @@ def test_markdown_with_chart_files_and_embedded(built, demo):
     assert all(t.startswith("demo-charts/") and t.endswith(".svg") for t in links)
     assert all(s.startswith("<?xml") and s.count("<svg") == 1 for s in files.values())
     assert "## Parts and the provenance of their values" in md
-    assert review._no_snapshot_text(design) in md
+    assert _flat(review._no_snapshot_text(design)) in _flat(md)
     embedded, none = built.markdown()
     assert none == {}
     uris = re.findall(r"\(data:image/svg\+xml;base64,([A-Za-z0-9+/=]+)\)", embedded)
@@ -718,8 +743,12 @@ def test_command_with_monte_carlo(tmp_path, capsys):
     assert len(hist) == min(review.MC_CHARTS, len(varying))
     assert all(b.count("<svg") == 1 for b in hist)
     for c in varying:  # the same seed gives the same boards: the table matches the run
-        assert f"<td>{html.escape(c.name)}</td><td class=\"num\">{c.passes.fraction:.2%}</td>" \
+        shown = sampled_check_label(c.name, c.id)    # the check by its label, as elsewhere
+        assert f"<td>{html.escape(shown)}</td><td class=\"num\">{c.passes.fraction:.2%}</td>" \
             in section
+    # no raw check id where the report names a check
+    assert "<td>sensors/main-3v3 SDA Pull-up window Rp(min)…Rp(max)</td>" in section
+    assert "pullup-window</td>" not in section and "Margin of pullup-window" not in section
     assert "seed 5" in section
 
 
@@ -734,8 +763,9 @@ def test_review_of_a_monte_carlo_run(demo):
     for c in mc.checks:
         if c.varies:
             lo, hi = c.passes.interval
-            assert f"| {review._m(c.name)} | {c.passes.fraction:.2%} | {lo:.2%} to {hi:.2%} |" \
-                in shown
+            name = review._m(sampled_check_label(c.name, c.id))
+            assert f"| {name} | {c.passes.fraction:.2%} | {lo:.2%} to {hi:.2%} |" in shown
+    assert "| flash COPI setup U7 |" in shown and "copi-setup U7 |" not in shown
     assert shown.count("data:image/svg+xml") == min(
         review.MC_CHARTS, sum(1 for c in mc.checks if c.varies))
 
@@ -974,6 +1004,221 @@ def test_a_budget_with_a_requirement_without_time_is_drawn_without_it():
     built = review.build_review(design, result)
     chart = next(c for c in built.all_charts() if c.kind == "timing-budget")
     assert chart.svg is not None and not chart.error
-    assert "cipo-setup U2" in chart.caption and "never crosses" in chart.caption
+    # named as the checks table names it, not by the path's raw id
+    assert "Not drawn: CIPO setup U2 (" in chart.caption and "never crosses" in chart.caption
+    assert "cipo-setup" not in chart.caption
     md, _ = built.markdown()
     assert not re.search(r"\bnan\b", md)
+
+
+def test_the_report_budget_chart_writes_the_checks_worst_corner_margin():
+    # reproducer (tests/data/spi-length-tolerance.toml, invented): CIPO setup passes at
+    # the nominal 80 cm and fails at +15 % length.  The report's budget chart wrote only
+    # the nominal board's margin, in the pass colour, beside a checks table that fails;
+    # the workbench's chart writes the worst corner's too (TimingBudgetData.worst).
+    from pinlib.core.quantity import format_si
+
+    design = load_design(ROOT / "tests" / "data" / "spi-length-tolerance.toml")
+    result = check_design(design)
+    cipo = next(c for c in result.bus("link").checks if c.id == "cipo-setup")
+    assert cipo.status == "fail" and cipo.details.get("corner")
+    built = review.build_review(design, result)
+    chart = next(c for c in built.all_charts() if c.kind == "timing-budget")
+    assert chart.svg is not None, chart.error
+    worst = format_si(cipo.value - cipo.limit, "s")   # the checks table's figure
+    assert worst.startswith("-")
+    assert f"worst corner {worst}" in html.unescape(chart.svg)
+    assert "worse corner of the tolerances" in chart.caption
+
+
+def test_the_changed_checks_table_names_each_check_by_its_label(tmp_path):
+    # reproducer: with U4 swapped for the legacy 5 V expander (a built-in generic class)
+    # the report's "Checks whose status changed" table showed raw ids (v-oh,
+    # noise-margin-high, device-speed) where every other table, and the text change list,
+    # shows the check's label (VOH, Noise margin high, Device speed)
+    from pinlib.core.labels import check_label
+
+    board = tmp_path / "board.toml"
+    board.write_text(DEMO.read_text(encoding="utf-8"), encoding="utf-8")
+    before = load_design(board)
+    save_snapshot(before, check_design(before))
+    board.write_text(board.read_text(encoding="utf-8").replace(
+        'part = "eeprom-i2c"', 'part = "io-expander-legacy-5v"', 1), encoding="utf-8")
+    after = load_design(board)
+    result = check_design(after)
+    changes = compare_with_snapshot(after, result)
+    assert changes is not None and changes.status_changes
+    page = review.render_html(after, result, changes=changes)
+    table = page[page.index("<h3>Checks whose status changed</h3>"):]
+    table = table[:table.index("</table>")]
+    for c in changes.status_changes:
+        assert check_label(c.check) != c.check
+        assert f'<td title="{html.escape(c.check)}">{html.escape(check_label(c.check))}</td>' \
+            in table
+        assert f"<code>{html.escape(c.check)}</code>" not in table
+
+
+def test_notes_name_a_figure_by_its_label(built):
+    # the SPI engine's notes start with the figure they explain, by its JSON id
+    # ("max_clock 24 MHz: ...", "cipo_setup_margin: not computed ..."); the report's
+    # figures tables call it "Highest clock", and so do its notes
+    page = built.html()
+    md, _ = built.markdown()
+    for text in (page, md):
+        # (the two highest-clock notes are worded so by the engine itself)
+        assert "highest clock 24 MHz: what the timing budget" in text.replace("\n", " ")
+        assert "highest clock by the edge rule of thumb 45 MHz" in text.replace("\n", " ")
+        assert "CIPO setup margin: not computed" in text
+        assert not re.search(r"\b(max_clock|max_clock_edge_rule|cipo_setup_margin)\b", text)
+
+
+#: The page's own width overflowed by: every element whose box passes the viewport's right
+#: edge, unless a box around it scrolls sideways (a wide table in its own scroller).
+_OVERFLOW_JS = """() => {
+  const W = document.documentElement.clientWidth, out = [];
+  const scrolls = e => { for (let p = e.parentElement; p; p = p.parentElement) {
+      const o = getComputedStyle(p).overflowX;
+      if (o === 'auto' || o === 'scroll' || o === 'hidden') return true; } return false; };
+  for (const e of document.querySelectorAll('body *')) {
+    if (e.closest('.visually-hidden')) continue;
+    const r = e.getBoundingClientRect();
+    if (r.width && r.right > W + 1 && !scrolls(e))
+      out.push(e.tagName + ' ' + Math.round(r.right) + ' ' + e.textContent.slice(0, 60));
+  }
+  return {page: document.documentElement.scrollWidth, width: W, out: out.slice(0, 10)};
+}"""
+
+
+def _long_words_page(tmp_path) -> str:
+    """The demo's report under a title of one 160-letter word, from a folder whose name is
+    as long (invented): words no line can hold."""
+    folder = tmp_path / ("d" * 160)
+    folder.mkdir()
+    board = folder / "board.toml"
+    text = DEMO.read_text(encoding="utf-8")
+    board.write_text(re.sub(r'(?m)^title = ".*"$', f'title = "{"T" * 160}"', text, count=1),
+                     encoding="utf-8")
+    design = load_design(board)
+    return review.render_html(design, check_design(design))
+
+
+def _long_route_page(tmp_path) -> str:
+    """The report of the routed SPI bus of tests/data (invented) with its tap point renamed
+    at length: a route diagram of some 65 characters, wider than a phone."""
+    board = tmp_path / "route.toml"
+    text = (ROOT / "tests" / "data" / "spi-route.toml").read_text(encoding="utf-8")
+    board.write_text(text.replace('"T1"', '"TAP-NEAR-THE-CONTROLLER-AND-FLASH"'),
+                     encoding="utf-8")
+    design = load_design(board)
+    page = review.render_html(design, check_design(design))
+    assert "└ TAP-NEAR-THE-CONTROLLER-AND-FLASH ─13 cm─ U3" in page
+    return page
+
+
+@pytest.mark.browser
+@needs_chromium
+@pytest.mark.parametrize("width, media, long_words", [
+    (420, "screen", False), (1400, "screen", False), (718, "print", False),
+    (420, "screen", True), (718, "print", True), (420, "screen", "route")])
+def test_nothing_passes_the_page_edge(page, tmp_path, width, media, long_words):
+    # reproducer: at 420 px the checks tables made the whole page scroll sideways (716 px
+    # wide), and printed on A4 (718 px, print media) the SPI bus's figure "CIPO setup
+    # margin: not computed (signal not routed or data missing)", kept on one line, passed
+    # the page's edge (757 px), where a PDF cuts it off
+    pytest.importorskip("playwright.sync_api")
+    from browser import launch_chromium
+    from playwright.sync_api import sync_playwright
+
+    report = tmp_path / "review.html"
+    text = (_long_route_page(tmp_path) if long_words == "route" else
+            _long_words_page(tmp_path) if long_words else page)
+    report.write_text(text, encoding="utf-8")
+    with sync_playwright() as pw:
+        browser = launch_chromium(pw)
+        try:
+            tab = browser.new_page(viewport={"width": width, "height": 900})
+            tab.goto(report.as_uri())
+            tab.emulate_media(media=media)
+            got = tab.evaluate(_OVERFLOW_JS)
+        finally:
+            browser.close()
+    assert got["out"] == [], got
+    assert got["page"] <= got["width"], got
+
+
+def test_the_markdown_change_list_reads_at_80_columns(tmp_path):
+    # reproducer: the change list's fenced block held each change on one line (300 and
+    # more characters: check, values, limit and source), which a code block neither wraps
+    # in a viewer nor in a terminal; it now reads as `pinlib check` prints it at 80
+    board = tmp_path / "board.toml"
+    board.write_text(DEMO.read_text(encoding="utf-8"), encoding="utf-8")
+    before = load_design(board)
+    save_snapshot(before, check_design(before))
+    board.write_text(board.read_text(encoding="utf-8").replace(
+        'part = "eeprom-i2c"', 'part = "io-expander-legacy-5v"', 1), encoding="utf-8")
+    after = load_design(board)
+    result = check_design(after)
+    changes = compare_with_snapshot(after, result)
+    md = review.render_markdown(after, result, changes=changes)
+    block = md[md.index("## Changes against the snapshot"):].split("```")[1]
+    lines = block.strip("\n").split("\n")
+    assert lines[0].startswith("Changes against the snapshot")
+    assert max(len(ln) for ln in lines) <= 80, max(lines, key=len)
+    # every word of the list is still there, in order
+    assert block.split() == changes.format_text().split()
+
+
+def test_the_markdown_reads_as_plain_text_at_80_columns(built):
+    # reproducer: every check was one table row of up to 600 characters (its finding and
+    # the source of its limit in cells), the caution, captions and notes one line each;
+    # the checks table now holds the numbers, the findings follow it as a numbered list
+    md, _ = built.markdown("demo-charts")
+    prose = [ln for ln in md.splitlines()
+             if not ln.startswith(("|", "#", "![")) and "`" not in ln]
+    assert prose and max(len(ln) for ln in prose) <= 80, max(prose, key=len)
+    rows = [ln for ln in md.splitlines() if re.match(r"^\| \d+ \| \*\*(PASS|WARN|FAIL)\*\*", ln)]
+    assert rows and all(ln.count(" | ") == 6 for ln in rows)
+    assert max(len(ln) for ln in rows) <= 90
+    # each row's finding under its number
+    items = _md_items(md)
+    assert sum(1 for i in items if re.match(r"\*\*(PASS|WARN|FAIL)\*\* ", i)) == len(rows)
+    assert "1.  **PASS** Bus capacitance, SDA: SDA bus capacitance 105 pF" in md
+
+
+@pytest.mark.parametrize("start", ["- 5 %", "+ 3", "# x", "---", "===", "1. item", "12. x"])
+def test_wrapping_markdown_never_starts_a_block(start):
+    from pinlib.present.review.markdown import _wrapped
+
+    # 77 characters fill the first line to the last column: the marker starts the next
+    text = "abcdefghij " * 6 + "a" * 11 + " " + start + " tail"
+    lines = _wrapped(text, "- ")
+    plain = review._mt(start + " tail")         # the marker, made plain as _mt does
+    assert any(ln.strip() == plain for ln in lines[1:]) or start[0].isdigit(), lines
+    assert len(lines) > 1 and all(len(ln) <= 80 for ln in lines)
+    for ln in lines[1:]:
+        body = ln.strip()
+        # a list item, a heading, an ordered item; a rule or setext underline (only = or -)
+        assert not re.match(r"^(?:[-+#]|\d+[.)])(?:\s|$)|^[=-]+\s*$", body), ln
+
+
+def test_markdown_parts_tables_cite_each_source_once_by_number(built, demo):
+    # reproducer: each part value's row carried its source in full (up to 130
+    # characters, the same source on many rows of a part), rows of 250 characters; the
+    # table now cites [n] and the part's sources follow it, each once, wrapped at 80
+    design, result = demo
+    md, _ = built.markdown("demo-charts")
+    part = md[md.index("### U1: mcu-3v3"):]
+    part = part[:part.index("\n### ", 1)]
+    rows = [ln for ln in part.splitlines() if ln.startswith("| `")]
+    assert rows and all(re.search(r"\| (\[\d+\]|—) \|", ln) for ln in rows)
+    cited = {int(n) for ln in rows for n in re.findall(r"\| \[(\d+)\] \|", ln)}
+    listed = re.findall(r"^- \[(\d+)\] ", part, re.M)
+    assert sorted(int(n) for n in listed) == sorted(cited) == list(range(1, len(cited) + 1))
+    sources = {e["source"] for e in snapshot(design, result)["parts"]["U1"]["values"].values()
+               if e.get("source")}
+    assert len(listed) == len(sources)
+    for src in sources:
+        assert _flat(review._m(src)) in _flat(part)
+    notes = [ln for ln in part.splitlines() if not ln.startswith(("|", "#"))]
+    assert max(len(ln) for ln in notes) <= 80
+    assert max(len(ln) for ln in rows) < 120

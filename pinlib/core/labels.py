@@ -23,7 +23,7 @@ from collections.abc import Callable, Mapping
 from typing import Any
 
 __all__ = ["FIGURES", "SHORT", "CHECKS", "figure_label", "short_label", "check_label",
-           "path_label", "study_row_label", "shown_figures", "humanize"]
+           "path_label", "sampled_check_label", "note_label", "shown_figures", "humanize"]
 
 #: Figure id -> label, in the order a table lists them (units come with the values).
 FIGURES: dict[str, str] = {
@@ -185,18 +185,42 @@ def path_label(path: str) -> str:
     return f"{check_label(head)} {rest}".strip()
 
 
-def study_row_label(name: str, check_id: str) -> str:
-    """A study's name of a check (:attr:`pinlib.studies.whatif.mcresult.McCheck.name`,
-    the key that matches it across boards) for people: its check id as its label,
-    ``"flash cipo-setup U7"`` -> ``"flash CIPO setup U7"``, ``"sensors/main-3v3 SCL
-    pullup-window"`` -> ``"sensors/main-3v3 SCL Pull-up window"`` (the bus or segment
-    before it is never taken for the id)."""
+#: The signals of an SPI bus, as a sampled check's name writes them (lower case).
+_SPI_SIGNALS = frozenset({"sclk", "copi", "cipo", "cs"})
+
+
+def sampled_check_label(name: str, check_id: str) -> str:
+    """A sampled check's name (a Monte Carlo run's or a corner study's: ``"<where>
+    [<signal>] <check id> [<subject>]"``) with its check id as the checks tables label it:
+    ``"flash sclk overshoot U7"`` -> ``"flash SCLK Overshoot U7"``, ``"sensors/main-3v3 SDA
+    pullup-window"`` -> ``"sensors/main-3v3 SDA Pull-up window Rp(min)…Rp(max)"``.  Words
+    just before the id that its label repeats go (a coupling's ``"SCL near end held low
+    crosstalk-low"`` -> ``"SCL near end Crosstalk held low"``).  A name without the id
+    is returned as it is."""
     words = name.split(" ")
-    for i in range(1, len(words)):
-        if words[i] == check_id:
-            words[i] = check_label(check_id)
-            return " ".join(words)
-    return name
+    at = [i for i, w in enumerate(words) if w == check_id]
+    if not at:
+        return name
+    i = at[-1]
+    head = [w.upper() if j and w in _SPI_SIGNALS else w for j, w in enumerate(words[:i])]
+    label = check_label(check_id).split(" ")
+    tail = label[1:]
+    if tail and len(head) > len(tail) and \
+            [w.lower() for w in head[-len(tail):]] == [w.lower() for w in tail]:
+        head = head[:-len(tail)]
+    return " ".join(head + label + words[i + 1:])
+
+
+def note_label(note: str) -> str:
+    """A note of a result whose first word is a figure's id (``"max_clock 24 MHz: ..."``,
+    ``"cipo_setup_margin: not computed ..."``) with the figure's label in its place
+    (``"Highest clock 24 MHz: ..."``); any other note as it is, a plain word that is an
+    id too among them (``"overshoot 881 mV ..."`` reads as it is)."""
+    head, sep, rest = note.partition(" ")
+    word = head.rstrip(":")
+    if "_" not in word or word not in FIGURES:
+        return note
+    return FIGURES[word] + head[len(word):] + sep + rest
 
 
 def _order(name: str) -> tuple[int, int]:

@@ -324,9 +324,14 @@ def _table(bus, design, chosen, tables, span, floor, distinct, progress):
 
 def _table_note(bus: Bus, grid) -> str:
     axes = ", ".join(f"{ax.kind} factor {ax.lo:.3g}–{ax.hi:.3g}" for ax in grid.axes)
+    # the largest difference of a relative margin, in percentage points; under 0.001 the
+    # bound itself (never an exponent)
+    points = max(float(grid.max_error) * 100.0, 0.001)
+    points_text = f"{points:.2g}" if points < 10 else f"{points:.0f}"
     return (f"bus {bus.id}: line results interpolated from {grid.evaluations} engine "
             f"evaluations over the tolerance box ({axes}); at {pptable.VERIFY} boards "
-            f"drawn in the box they agree with the engine within {grid.max_error:.1e} "
+            f"drawn in the box they agree with the engine within {points_text} percentage "
+            "points "
             + ("of margin (boards outside the box, within three times that of failing, "
                "or where a line's results jump: evaluated by the engine)" if grid.has_jumps()
                else "of margin (boards outside the box, or within three times that of "

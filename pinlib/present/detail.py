@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import textwrap
 
-from pinlib.core.labels import check_label, humanize
+from pinlib.core.labels import check_label, humanize, note_label
 from pinlib.model.result import CAUTION, BusResult, Group, margin_text
 from pinlib.present.terminal import status_word, wrap
 from pinlib.present.values import counts, figure_cells, format_value, with_fix
@@ -92,7 +92,7 @@ def _notes(bus: BusResult) -> list[str]:
     groups = [("", bus)] + [(s.id, s) for s in bus.segments] + \
              [(ln.signal, ln) for ln in bus.lines]
     for name, g in groups:
-        for n in g.notes:
+        for n in map(note_label, g.notes):  # a figure's id at its start: its label
             places.setdefault(n, [])
             if name and name not in places[n]:
                 places[n].append(name)

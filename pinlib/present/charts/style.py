@@ -125,16 +125,44 @@ def text_width(text: str, size: float, *, bold: bool = False) -> float:
     return float(size) * sum(table.get(ch, 1.0) for ch in str(text))
 
 
+#: Where a word wider than a line may be broken: after each of these (an id's hyphens,
+#: a path's slashes, dots and underscores).
+_WORD_BREAKS = re.compile(r"(?<=[-/._])")
+
+
 def _wrap(text: str, size: float, limit: float, *, bold: bool = False) -> list[str]:
-    """``text`` broken at spaces into lines no wider than ``limit`` px (a word longer
-    than that stays whole on its own line)."""
+    """``text`` broken at spaces into lines no wider than ``limit`` px.  A word wider
+    than that (a long bus id) is broken after a hyphen, slash, dot or underscore, and
+    where it has none that fits, between characters: a chart cuts off what passes its
+    edge."""
     lines: list[str] = []
     for word in str(text).split(" "):
         if lines and text_width(f"{lines[-1]} {word}", size, bold=bold) <= limit:
             lines[-1] = f"{lines[-1]} {word}"
-        else:
+        elif text_width(word, size, bold=bold) <= limit:
             lines.append(word)
+        else:
+            lines += _broken(word, size, limit, bold)
     return lines
+
+
+def _broken(word: str, size: float, limit: float, bold: bool) -> list[str]:
+    """A word wider than ``limit`` px as lines that fit (at least one character each)."""
+    out: list[str] = []
+    for piece in _WORD_BREAKS.split(word):
+        while piece:
+            if out and text_width(out[-1] + piece, size, bold=bold) <= limit:
+                out[-1] += piece
+                break
+            if text_width(piece, size, bold=bold) <= limit:
+                out.append(piece)
+                break
+            cut = 1   # the longest head of the piece that fits, one character at least
+            while cut < len(piece) and text_width(piece[:cut + 1], size, bold=bold) <= limit:
+                cut += 1
+            out.append(piece[:cut])
+            piece = piece[cut:]
+    return out
 
 
 _QUANTITY = re.compile(r"\s*[-+]?\d+(?:\.\d+)?\s?[TGMkmµnpf]?Ω")

@@ -6,6 +6,7 @@ noise waveforms."""
 from __future__ import annotations
 
 from pinlib.core.errors import PinlibError
+from pinlib.core.labels import path_label
 from pinlib.model.result import BusResult
 from pinlib.present.review.draw import ReviewChart, _draw, _f
 
@@ -103,24 +104,28 @@ def _push_pull_charts(bus, design, result: BusResult, keys, charts):
                     subtitle=f"at {rx}")))
     sa = plotdata.workings(bus, design, result) if bus.protocol == "spi" else None
     if sa is not None and sa.terms:
-        _budget_chart(bus, design, sa, keys, charts)
+        _budget_chart(bus, design, result, keys, charts)
 
 
-def _budget_chart(bus, design, sa, keys, charts):
+def _budget_chart(bus, design, result: BusResult, keys, charts):
     """The SPI timing budget of a bus as stacked bars (a requirement without a time
-    is named in the caption, not drawn)."""
+    is named in the caption, not drawn); beside each bar the nominal board's margin and,
+    where the bus's check is taken at a worse corner of its tolerances, that one (the
+    checks table's figure), which also colours it."""
     from pinlib.present import charts as ch
     from pinlib.present import plotdata
 
     title = f"SPI timing budget: {bus.id} at {_f(bus.clock, 'Hz')}"
     key = keys(bus.id, "timing-budget")
     try:
-        tb = plotdata.timing_budget_data(bus, design, analysis=sa)
+        # the bus's result, not its workings alone: its checks give the worst corners
+        tb = plotdata.timing_budget_data(bus, design, analysis=result)
     except PinlibError as err:
         charts.setdefault(("bus", bus.id), []).append(
             ReviewChart(key, "timing-budget", title, "", None, err.message))
         return
-    missing = "".join(f" Not drawn: {path} ({why})." for path, why in tb.not_drawn.items())
+    missing = "".join(f" Not drawn: {path_label(path)} ({why})."
+                      for path, why in tb.not_drawn.items())
     if not tb.rows:
         charts.setdefault(("bus", bus.id), []).append(
             ReviewChart(key, "timing-budget", title, "", None,
@@ -132,12 +137,15 @@ def _budget_chart(bus, design, sa, keys, charts):
                "test load) to the receiver's threshold on the real line; a term in the "
                "requirement's favour (a clock that arrives late on a setup path, data "
                "that arrives late on a hold path) is a credit that stacks left of zero. "
-               "The margin is written beside each bar." + missing)
+               "The bars are the nominal board; beside each is its margin"
+               + ("; where the check is taken at a worse corner of the tolerances, its "
+                  "margin there follows (the checks table's figure) and sets the colour"
+                  if tb.worst else "") + "." + missing)
     charts.setdefault(("bus", bus.id), []).append(_draw(
         key, "timing-budget", title, caption,
         lambda tb=tb, title=title: ch.timing_budget(
             tb.rows, available=tb.available, margins=tb.margins, status=tb.status,
-            title=title, subtitle=f"SPI mode {bus.spi_mode}, period "
+            worst=tb.worst, title=title, subtitle=f"SPI mode {bus.spi_mode}, period "
                                   f"{_f(tb.period, 's')}")))
 
 

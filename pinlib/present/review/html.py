@@ -8,7 +8,7 @@ import re
 
 from pinlib import __version__
 from pinlib.core import messages as M
-from pinlib.core.labels import check_label
+from pinlib.core.labels import check_label, note_label
 from pinlib.model.result import CAUTION, BusResult, Group
 from pinlib.present.review.draw import ReviewChart, _slug
 from pinlib.present.review.montecarlo import _MC_HEAD, _mc_cells, _mc_summary
@@ -39,7 +39,8 @@ _CSS = """\
 :root{--ink:#111;--muted:#4a4a4a;--rule:#c8c8c8;--head:#eef0f2}
 *{box-sizing:border-box}
 body{font-family:"DejaVu Sans","Segoe UI",Roboto,Helvetica,Arial,sans-serif;color:var(--ink);
-background:#fff;margin:0 auto;max-width:1500px;padding:1rem 2rem 3rem;line-height:1.4}
+background:#fff;margin:0 auto;max-width:1500px;padding:1rem 2rem 3rem;line-height:1.4;
+overflow-wrap:break-word}
 h1{font-size:1.6rem;margin:.4rem 0}h2{font-size:1.3rem;margin-top:2.2rem;
 border-bottom:2px solid var(--ink);padding-bottom:.2rem}h3{font-size:1.1rem;margin-top:1.6rem}
 h4{font-size:1rem;margin:1rem 0 .3rem}
@@ -53,6 +54,8 @@ th,td{border:1px solid var(--rule);padding:.18rem .45rem;text-align:left;vertica
 th{background:var(--head)}
 td.num{text-align:right;white-space:nowrap;font-variant-numeric:tabular-nums}
 td.src{max-width:30rem}td.msg{max-width:34rem}
+.scroll{overflow-x:auto;max-width:100%}
+.scroll>table{margin-top:0}
 .status{display:inline-block;min-width:3.3em;text-align:center;font-weight:700;
 border:1px solid var(--ink);border-radius:3px;padding:0 .3em;color:#000}
 .s-pass{background:#009E73}.s-warn{background:#E69F00}.s-fail{background:#D55E00}
@@ -63,7 +66,7 @@ dl.figs{display:grid;grid-template-columns:repeat(auto-fill,minmax(17rem,1fr));g
 margin:.3rem 0 1rem;font-size:.82rem}
 dl.figs div{display:flex;justify-content:space-between;border-bottom:1px dotted var(--rule);
 padding:.1rem 0}dl.figs dt{margin-right:1rem}dl.figs dd{margin:0;white-space:nowrap;
-font-variant-numeric:tabular-nums}
+font-variant-numeric:tabular-nums}dl.figs dd.words{white-space:normal;text-align:right}
 dl.meta{display:grid;grid-template-columns:max-content 1fr;gap:0 1rem;font-size:.85rem}
 dl.meta dt{font-weight:700}dl.meta dd{margin:0}
 .charts{display:flex;flex-wrap:wrap;gap:1rem;margin:.6rem 0 1rem}
@@ -74,9 +77,18 @@ figcaption{font-size:.8rem;color:var(--muted);margin-top:.3rem}
 .notes{font-size:.85rem;color:var(--muted)}
 .none{color:var(--muted);font-style:italic}
 code{font-size:.9em}
+pre{overflow-x:auto;max-width:100%}
 footer{margin-top:3rem;border-top:1px solid var(--rule);color:var(--muted);font-size:.85rem}
-@media print{body{max-width:none;padding:0}figure{break-inside:avoid}}
+@media screen and (max-width:48rem){body{padding:.6rem .8rem 2rem}
+td.msg,td.src{min-width:15rem}}
+@media print{body{max-width:none;padding:0}figure{break-inside:avoid}
+.scroll,pre{overflow:visible}}
 """
+
+
+#: A table's start: each table in its own sideways scroller, so that a wide one never
+#: widens the page (print shows it whole).
+_TABLE = '<div class="scroll"><table>'
 
 
 def _e(text) -> str:
@@ -146,7 +158,7 @@ class _Html:
 
     def summary(self):
         self.w('<section id="summary" aria-labelledby="h-summary">',
-               '<h2 id="h-summary">Summary</h2>', "<table>",
+               '<h2 id="h-summary">Summary</h2>', _TABLE,
                "<thead><tr><th scope=\"col\">Bus</th><th scope=\"col\">Protocol</th>"
                "<th scope=\"col\">Status</th><th scope=\"col\">Pass</th>"
                "<th scope=\"col\">Warn</th><th scope=\"col\">Fail</th>"
@@ -158,7 +170,7 @@ class _Html:
                    f"</td><td>{_e(b.protocol)}</td><td>{_badge(b.status)}</td>"
                    f'<td class="num">{c["pass"]}</td><td class="num">{c["warn"]}</td>'
                    f'<td class="num">{c["fail"]}</td><td class="num">{n}</td></tr>')
-        self.w("</tbody></table>")
+        self.w("</tbody></table></div>")
         if self.r.result.notes:
             self.w('<ul class="notes">', *[f"<li>{_e(n)}</li>" for n in self.r.result.notes],
                    "</ul>")
@@ -193,10 +205,13 @@ class _Html:
         if g.figures:
             self.w(f"<{h}>Figures</{h}>", f'<dl class="figs" aria-label="Figures of {_e(label)}">')
             for name, value in figure_cells(g.figures):
-                self.w(f"<div><dt>{_e(name)}</dt><dd>{_e(value)}</dd></div>")
+                # a number with its unit stays on one line; words (a figure's reason for
+                # having no number, "not computed (...)") wrap within the column
+                words = "" if value[:1].isdigit() or value[:1] in "+-−" else ' class="words"'
+                self.w(f"<div><dt>{_e(name)}</dt><dd{words}>{_e(value)}</dd></div>")
             self.w("</dl>")
         if g.checks:
-            self.w(f"<{h}>Checks</{h}>", "<table>",
+            self.w(f"<{h}>Checks</{h}>", _TABLE,
                    f"<caption class=\"visually-hidden\">Checks of {_e(label)}</caption>",
                    "<thead><tr>" + "".join(f'<th scope="col">{x}</th>' for x in (
                        "Status", "Check", "Subject", "Value", "Limit", "Margin", "Finding",
@@ -210,7 +225,7 @@ class _Html:
                        f'<td class="num">{_e(_margin(c))}</td>'
                        f'<td class="msg">{_e(_message(c))}</td>'
                        f'<td class="src">{_e(c.source)}</td></tr>')
-            self.w("</tbody></table>")
+            self.w("</tbody></table></div>")
         charts = self.r.charts.get(place, [])
         if charts:
             self.w(f"<{h}>Charts</{h}>", '<div class="charts">')
@@ -219,7 +234,7 @@ class _Html:
             self.w("</div>")
         if g.notes:
             self.w(f"<{h}>Notes</{h}>", '<ul class="notes">',
-                   *[f"<li>{_e(n)}</li>" for n in g.notes], "</ul>")
+                   *[f"<li>{_e(note_label(n))}</li>" for n in g.notes], "</ul>")
 
     def chart(self, chart: ReviewChart):
         self.w(f'<figure id="chart-{_e(chart.key)}" data-chart="{_e(chart.kind)}">')
@@ -238,8 +253,8 @@ class _Html:
             self.w(f'<p class="meta">{_e(line)}</p>')
         rows = self.r.mc_entries
         if rows:
-            self.w("<table><caption>Checks whose margin varies over the boards, or that fail "
-                   "on some</caption><thead><tr>"
+            self.w(_TABLE + "<caption>Checks whose margin varies over the boards, or that "
+                   "fail on some</caption><thead><tr>"
                    + "".join(f'<th scope="col">{_e(x)}</th>' for x in _MC_HEAD)
                    + "</tr></thead><tbody>")
             for row in rows:
@@ -248,7 +263,7 @@ class _Html:
                 self.w(f"<tr{cls}><td>{_e(cells[0])}</td>"
                        + "".join(f'<td class="num">{_e(c)}</td>' for c in cells[1:4])
                        + f"<td>{_e(cells[4])}</td><td class=\"src\">{_e(cells[5])}</td></tr>")
-            self.w("</tbody></table>")
+            self.w("</tbody></table></div>")
         if self.r.mc_charts:
             self.w(f'<p class="meta">Histograms of the {len(self.r.mc_charts)} checks with the '
                    "lowest pass fractions and margins.</p>", '<div class="charts">')
@@ -276,7 +291,7 @@ class _Html:
                    f'<h3 id="h-{sid}">{_e(_part_heading(ref, p))}</h3>', "<dl class=\"meta\">")
             for k, v in _part_facts(p):
                 self.w(f"<dt>{_e(k)}</dt><dd>{_e(v)}</dd>")
-            self.w("</dl>", "<table>",
+            self.w("</dl>", _TABLE,
                    f"<caption class=\"visually-hidden\">Values of {_e(ref)}</caption>",
                    "<thead><tr>" + "".join(f'<th scope="col">{x}</th>' for x in (
                        "Value", "Resolved", "Typical", "Basis", "Source", "Set in"))
@@ -289,7 +304,7 @@ class _Html:
                        f"<td>{_e(_basis(entry))}</td><td class=\"src\">"
                        f"{_e(entry.get('source', '—'))}</td>"
                        f"<td>{_e(_origin(entry, p.get('part', '')))}</td></tr>")
-            self.w("</tbody></table>", "</section>")
+            self.w("</tbody></table></div>", "</section>")
         self.w("</section>")
 
     # -------------------------------------------------------------- changes
@@ -323,7 +338,7 @@ class _Html:
         if cl.groups:
             self.w(f"<p>{_e('; '.join(cl.group_lines()))}.</p>")
         if cl.status_changes:
-            self.w("<h3>Checks whose status changed</h3>", "<table><thead><tr>"
+            self.w("<h3>Checks whose status changed</h3>", _TABLE + "<thead><tr>"
                    + "".join(f'<th scope="col">{x}</th>' for x in (
                        "Where", "Check", "Subject", "Before", "After", "Value", "Limit",
                        "Source of the limit")) + "</tr></thead><tbody>")
@@ -337,17 +352,18 @@ class _Html:
                 limit_s = "" if isinstance(limit, bool) or limit is None else \
                     format_figure(limit, c.unit)
                 self.w(f'<tr class="r-{c.new or "fail"}"><td>{_e(c.path)}</td>'
-                       f"<td><code>{_e(c.check)}</code></td><td>{_e(subj)}</td>"
+                       f'<td title="{_e(c.check)}">{_e(check_label(c.check))}</td>'
+                       f"<td>{_e(subj)}</td>"
                        f"<td>{before}</td><td>{after}</td><td class=\"num\">{_e(value)}</td>"
                        f'<td class="num">{_e(limit_s)}</td><td class="src">{_e(c.source)}'
                        "</td></tr>")
-            self.w("</tbody></table>")
+            self.w("</tbody></table></div>")
         if cl.margin_changes:
             self.w(f"<h3>Margins that moved more than {cl.threshold * 100:g} points "
                    "(status unchanged)</h3>", "<ul>",
                    *[f"<li>{_e(c.format())}</li>" for c in cl.margin_changes], "</ul>")
         if cl.figure_changes:
-            self.w(f"<h3>Figures that moved more than {_e(pct)}</h3>", "<table><thead><tr>"
+            self.w(f"<h3>Figures that moved more than {_e(pct)}</h3>", _TABLE + "<thead><tr>"
                    + "".join(f'<th scope="col">{x}</th>' for x in (
                        "Where", "Figure", "Before", "After", "Change")) + "</tr></thead><tbody>")
             for f in shown_changes(cl.figure_changes):
@@ -355,7 +371,7 @@ class _Html:
                        f'<td class="num">{_e(format_figure(f.old, f.unit))}</td>'
                        f'<td class="num">{_e(format_figure(f.new, f.unit))}</td>'
                        f'<td class="num">{_e(format_change(f.change, f.old) or f.kind)}</td></tr>')
-            self.w("</tbody></table>")
+            self.w("</tbody></table></div>")
         if cl.part_changes:
             self.w("<h3>Part values behind the change</h3>")
             for pc in cl.part_changes:

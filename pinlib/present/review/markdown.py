@@ -8,8 +8,10 @@ import re
 
 from pinlib import __version__
 from pinlib.core import messages as M
-from pinlib.core.labels import check_label
+from pinlib.core.labels import check_label, note_label
+from pinlib.core.wrapping import wrap
 from pinlib.model.result import CAUTION, BusResult, Group
+from pinlib.present.report import fit
 from pinlib.present.review.draw import ReviewChart
 from pinlib.present.review.montecarlo import _MC_HEAD, _mc_cells, _mc_summary
 from pinlib.present.review.parts import (
@@ -45,6 +47,10 @@ _MD_INLINE = str.maketrans({**{c: "\\" + c for c in "\\`*_[]|~"},
 # numbered item (1. x): each only with the space or line end that makes it one
 _MD_LINE_START = re.compile(r"^(?:(#{1,6}|[+-])(?=\s|$)|([=-])(?=[=\-\s]*$)"
                             r"|(\d{1,9})([.)])(?=\s|$))")
+
+
+#: The width of the Markdown's preformatted text (the change list), in characters.
+TEXT_WIDTH = 80
 
 
 def _mt(text) -> str:
@@ -98,6 +104,22 @@ def _fenced(text: str) -> list[str]:
     return [fence, text, fence]
 
 
+def _wrapped(text: str, marker: str = "", hang: str | None = None) -> list[str]:
+    """Markdown text (escaped already) as lines of at most :data:`TEXT_WIDTH` characters:
+    the first after ``marker`` (``"- "``, ``"> "``, ``"3. "``), the others after ``hang``
+    (spaces as wide as the marker by default), a number kept with its unit.  A line that
+    would start a block where it now begins (``- x``, ``1. x``, ``# x``, ``---``) is made
+    plain as :func:`_mt` makes a text's start, so wrapping never changes the structure."""
+    hang = " " * len(marker) if hang is None else hang
+    room = TEXT_WIDTH - max(len(marker), len(hang)) - 1   # - 1: room for that escape
+    out = []
+    for i, line in enumerate(wrap(text, room, "", "")):
+        if i:
+            line = _MD_LINE_START.sub(_plain_start, line, count=1)
+        out.append((hang if i else marker) + line)
+    return out
+
+
 def _row(cells) -> str:
     return "| " + " | ".join(cells) + " |"
 
@@ -122,15 +144,16 @@ class _Markdown:
         r, res = self.r, self.r.result
         counts = _counts(res)
         self.w(f"# Design review: {_mt(res.design)}", "",
-               f"> **Caution.** {_mt(CAUTION)}", "")
+               *_wrapped(f"**Caution.** {_mt(CAUTION)}", "> ", "> "), "")
         if res.path:
             self.w(f"Design file: {_code(res.path)}", "")
         desc = getattr(r.design, "description", None)
         if desc:
-            self.w(_mt(desc), "")
-        self.w(f"**Overall: {_MARK[res.status]}** — the design {_STATUS_WORD[res.status]}: "
-               f"{counts['pass']} checks pass, {counts['warn']} warn, {counts['fail']} fail "
-               f"(warning below {res.warn_margin:.0%} margin).", "")
+            self.w(*_wrapped(_mt(desc)), "")
+        self.w(*_wrapped(
+            f"**Overall: {_MARK[res.status]}** — the design {_STATUS_WORD[res.status]}: "
+            f"{counts['pass']} checks pass, {counts['warn']} warn, {counts['fail']} fail "
+            f"(warning below {res.warn_margin:.0%} margin)."), "")
         self.w("## Summary", "")
         rows = []
         for b in res.results():
@@ -139,21 +162,21 @@ class _Markdown:
                          str(c["warn"]), str(c["fail"])])
         self.w(*_table(["Bus", "Protocol", "Status", "Pass", "Warn", "Fail"], rows))
         for n in res.notes:
-            self.w(f"- {_mt(n)}")
+            self.w(*_wrapped(_mt(n), "- "))
         for b in res.results():
             self.bus(b)
         if r.mc is not None:
             self.monte_carlo()
         self.parts()
         self.changes()
-        self.w("---", "", f"Made by pinlib {__version__}. {_mt(CAUTION)}", "")
+        self.w("---", "", *_wrapped(f"Made by pinlib {__version__}. {_mt(CAUTION)}"), "")
         return "\n".join(self.out), self.files
 
     def bus(self, b: BusResult):
         design_bus = next((x for x in self.r.design.buses if x.id == b.id), None)
         self.w(f"## {_mt(_heading(b))}: {_MARK[b.status]}", "")
         if design_bus is not None and design_bus.title:
-            self.w(f"*{_mt(design_bus.title)}*", "")
+            self.w(*_wrapped(f"*{_mt(design_bus.title)}*"), "")
         for head, _, grp, place in _groups(b):
             if head is None:
                 self.group(grp, place, "###")
@@ -170,22 +193,31 @@ class _Markdown:
             self.w(*_table(["Figure", "Value"],
                            [[_m(label), _m(value)] for label, value in figure_cells(g.figures)]))
         if g.checks:
+            # a table narrow enough to read as plain text, each row numbered; the findings
+            # and the sources of the limits below it, under the same numbers
             self.w(f"{h} Checks", "")
-            rows = []
-            for c in g.checks:
+            rows, items = [], []
+            for i, c in enumerate(g.checks, 1):
                 value, limit = _check_cells(c)
-                rows.append([f"**{_MARK[c.status]}**", _m(check_label(c.id)), _m(c.subject or ""),
-                             _m(value), _m(limit), _m(_margin(c)), _m(_message(c)),
-                             _m(c.source)])
-            self.w(*_table(["Status", "Check", "Subject", "Value", "Limit", "Margin",
-                            "Finding", "Source of the limit"], rows))
+                label = _m(check_label(c.id)) + (f", {_m(c.subject)}" if c.subject else "")
+                rows.append([str(i), f"**{_MARK[c.status]}**", _m(check_label(c.id)),
+                             _m(c.subject or ""), _m(value), _m(limit), _m(_margin(c))])
+                items += _wrapped(f"**{_MARK[c.status]}** {label}: {_m(_message(c))}. "
+                                  f"*Source of the limit:* {_m(c.source)}",
+                                  f"{i}.".ljust(len(str(len(g.checks))) + 2))
+            self.w(*_table(["#", "Status", "Check", "Subject", "Value", "Limit", "Margin"],
+                           rows))
+            self.w("Findings and the sources of their limits:", "", *items, "")
         charts = self.r.charts.get(place, [])
         if charts:
             self.w(f"{h} Charts", "")
             for chart in charts:
                 self.chart(chart)
         if g.notes:
-            self.w(f"{h} Notes", "", *[f"- {_mt(n)}" for n in g.notes], "")
+            self.w(f"{h} Notes", "")
+            for n in g.notes:
+                self.w(*_wrapped(_mt(note_label(n)), "- "))
+            self.w("")
 
     def chart(self, chart: ReviewChart):
         if chart.svg is None:
@@ -199,13 +231,13 @@ class _Markdown:
         else:
             target = f"{self.dir}/{chart.key}.svg"
             self.files[target] = '<?xml version="1.0" encoding="UTF-8"?>\n' + chart.svg + "\n"
-        self.w(f"![{_mt(alt)}]({target})", "", f"*{_mt(chart.title)}.* {_mt(chart.caption)}",
-               "")
+        self.w(f"![{_mt(alt)}]({target})", "",
+               *_wrapped(f"*{_mt(chart.title)}.* {_mt(chart.caption)}"), "")
 
     def monte_carlo(self):
         self.w("## Monte Carlo", "")
         for line in _mc_summary(self.r.mc):
-            self.w(_mt(line), "")
+            self.w(*_wrapped(_mt(line)), "")
         if self.r.mc_entries:
             self.w(*_table(list(_MC_HEAD), [[_m(c) for c in _mc_cells(r)]
                                             for r in self.r.mc_entries]))
@@ -215,28 +247,41 @@ class _Markdown:
     def parts(self):
         from pinlib.studies.compare import value_label
 
-        self.w("## Parts and the provenance of their values", "",
+        self.w("## Parts and the provenance of their values", "", *_wrapped(
                "Every value as the library resolved it: its basis, its source, and the part "
                "file that set it (this part, or a class it inherits from). A basis marked *file "
                "provenance* is not stated on the value itself: it is the provenance of the part "
-               "file that set it.", "")
+               "file that set it."), "")
         for ref, p in self.r.parts.items():
             self.w(f"### {_mt(_part_heading(ref, p))}", "")
             for k, v in _part_facts(p):
-                self.w(f"- {k}: {_mt(v)}")
+                self.w(*_wrapped(f"{k}: {_mt(v)}", "- "))
             self.w("")
-            rows = [[_code(value_label(key)), _m(_part_value(e)), _m(_typ(e)), _m(_basis(e)),
-                     _m(e.get("source", "—")), _m(_origin(e, p.get("part", "")))]
-                    for key, e in (p.get("values") or {}).items()]
+            # each source once, cited by number: a part's values share a few sources, and
+            # a row that carried its own in full was 250 characters wide
+            cite: dict[str, int] = {}
+            rows = []
+            for key, e in (p.get("values") or {}).items():
+                src = e.get("source")
+                ref_text = f"[{cite.setdefault(src, len(cite) + 1)}]" if src else "—"
+                rows.append([_code(value_label(key)), _m(_part_value(e)), _m(_typ(e)),
+                             _m(_basis(e)), ref_text, _m(_origin(e, p.get("part", "")))])
             self.w(*_table(["Value", "Resolved", "Typical", "Basis", "Source", "Set in"],
                            rows))
+            if cite:
+                self.w("Sources:", "")
+                for src, n in cite.items():
+                    self.w(*_wrapped(_mt(src), f"- [{n}] ", "  "))
+                self.w("")
 
     def changes(self):
         cl = self.r.changes
         self.w("## Changes against the snapshot", "")
         if cl is None:
             path = getattr(self.r.design, "path", None)
-            self.w(_with_code(M.NO_SNAPSHOT_TO_COMPARE, design=str(path) if path else "DESIGN"),
-                   "")
+            self.w(*_wrapped(_with_code(M.NO_SNAPSHOT_TO_COMPARE,
+                                        design=str(path) if path else "DESIGN")), "")
             return
-        self.w(*_fenced(cl.format_text().rstrip("\n")), "")
+        # as `pinlib check` prints it at 80 columns: plain text that reads without a viewer
+        lines = fit(cl.format_text().rstrip("\n").split("\n"), TEXT_WIDTH)
+        self.w(*_fenced("\n".join(lines)), "")

@@ -4,6 +4,7 @@ run's summary sentences and the histograms of the checks with the lowest pass fr
 
 from __future__ import annotations
 
+from pinlib.core.labels import check_label, sampled_check_label
 from pinlib.model.result import margin_order, signed_margin_text
 from pinlib.present.review.draw import _draw
 from pinlib.studies.whatif.yields import percent_text
@@ -41,11 +42,16 @@ def _mc_rows(mc) -> list[dict]:
                 else None
             # a margin in a unit (a gate overdrive in volts) is drawn and written in it
             m_unit = _get(entry, "margin_unit")
+            cid = _get(entry, "id")
+            # the check as the checks tables name it (its id stays in the JSON)
+            name = _get(entry, "name")
+            where = (sampled_check_label(name, cid) if name and cid else name
+                     or check_label(cid or "check"))
             rows.append({
-                "where": _get(entry, "name") or _get(entry, "id", "check"),
+                "where": where,
                 "samples": samples, "limit": 0.0, "unit": m_unit or "%", "kind": "min",
                 "margin_unit": m_unit,
-                "label": f"Margin of {_get(entry, 'id', 'the check')}, "
+                "label": f"Margin of {check_label(cid) if cid else 'the check'}, "
                          + ("above its limit" if m_unit else "relative to its limit"),
                 "fraction": float(passes.fraction), "ci": tuple(passes.interval),
                 "count": f"{passes.passes}/{passes.n}",
@@ -67,7 +73,8 @@ def _mc_rows(mc) -> list[dict]:
         samples = np.asarray(samples, dtype=float)
         finite = samples[np.isfinite(samples)]
         frac = _get(entry, "pass_fraction")
-        where = " ".join(str(x) for x in (_get(entry, "path", ""), _get(entry, "id", "check"),
+        where = " ".join(str(x) for x in (_get(entry, "path", ""),
+                                          check_label(str(_get(entry, "id", "check"))),
                                           _get(entry, "subject", "")) if x)
         rows.append({
             "where": where, "samples": samples, "limit": _get(entry, "limit"),

@@ -10,7 +10,7 @@ from dataclasses import field
 
 import numpy as np
 
-from pinlib.core.labels import study_row_label
+from pinlib.core.labels import sampled_check_label
 from pinlib.core.progress import progress_bar
 from pinlib.core.protocols import PUSH_PULL_PROTOCOLS
 from pinlib.core.valueclass import value_class
@@ -76,7 +76,7 @@ class CornerCheck:
     @property
     def label(self) -> str:
         """:attr:`name` for people: its check id as its label (``flash CIPO setup U7``)."""
-        return study_row_label(self.name, self.id)
+        return sampled_check_label(self.name, self.id)
 
     def to_json(self) -> dict:
         return {"name": self.name, "bus": self.bus, "segment": self.segment,

@@ -7,7 +7,7 @@ from dataclasses import field
 
 import numpy as np
 
-from pinlib.core.labels import study_row_label
+from pinlib.core.labels import sampled_check_label
 from pinlib.core.valueclass import value_class
 from pinlib.model.result import json_number, margin_order, signed_margin_text
 from pinlib.studies.whatif.sensitivity import SENSITIVITY_FLOOR
@@ -88,7 +88,7 @@ class McCheck:
     @property
     def label(self) -> str:
         """:attr:`name` for people: its check id as its label (``flash CIPO setup U7``)."""
-        return study_row_label(self.name, self.id)
+        return sampled_check_label(self.name, self.id)
 
     @property
     def complete(self) -> bool:
