@@ -213,6 +213,19 @@ def test_quantities_are_read_with_their_units(library):
     assert b.error is None and b.held_html.value == ""
 
 
+def test_an_empty_plain_number_is_not_asked_for_a_unit(library):
+    """εr is a plain number: an empty box asks for the number in its range, not for a
+    unit it has none of; an empty quantity still asks for its unit."""
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    _type(b.trace.er, "")
+    assert b.trace.er.error is not None and "a value is needed" in b.trace.er.error.problem
+    assert "unit" not in b.trace.er.error.expected, b.trace.er.error.expected
+    assert "unit" not in b.trace.er.error_html.value
+    _type(b.trace.er, "4.2")
+    _type(b.supply, "")
+    assert b.supply.error.expected.endswith("with its unit")
+
+
 def test_set_refuses_out_of_range_values_and_writes_the_box(library):
     b = BusBuilder(library, peripherals=["eeprom-i2c"])
     with pytest.raises(InputError, match="range"):

@@ -201,6 +201,11 @@ class QuantityField:
             return f"{f(self.lo)} or more"
         return f"{f(self.hi)} or less"
 
+    def _needed_text(self) -> str:
+        """What an empty box is told to hold: the range, with the unit where the value has
+        one (a plain number, such as εr, has none)."""
+        return f"{self._range_text()}, with its unit" if self.unit else self._range_text()
+
     def check(self, value: float, shown_as) -> float:
         """``value`` when it is in range; otherwise an InputError naming the range."""
         ok = math.isfinite(value) and (self.lo is None or value >= self.lo) and \
@@ -216,8 +221,7 @@ class QuantityField:
         if not text:
             if self.optional:
                 return None
-            raise InputError(M.VALUE_NEEDED, field=self.name,
-                             expected=f"{self._range_text()}, with its unit")
+            raise InputError(M.VALUE_NEEDED, field=self.name, expected=self._needed_text())
         if self.unit == "":
             try:
                 value = float(text)
@@ -246,7 +250,7 @@ class QuantityField:
         if value is None:
             if not self.optional:
                 raise InputError(M.VALUE_NEEDED, field=self.name,
-                                 expected=f"{self._range_text()}, with its unit")
+                                 expected=self._needed_text())
         else:
             value = self.check(float(value), value)
         self.value, self.error = value, None
