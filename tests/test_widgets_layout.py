@@ -287,6 +287,26 @@ def test_protocol_change_says_what_the_mode_became(library):
     assert b.mode_note.value != ""
 
 
+def test_a_note_on_what_a_change_did_goes_when_the_user_chooses_again(library):
+    """"Mode 100k is not offered here: now standard." is true until the user chooses a
+    mode: beside fast-plus it would say the mode is standard."""
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.set(protocol="smbus")
+    b.set(protocol="i2c")
+    assert "now" in b.mode_note.value
+    b.set(mode="fast-plus")
+    assert b.mode_note.value == ""
+    b.set(protocol="smbus")  # said again on the next change of the options
+    assert "fast-plus" in b.mode_note.value
+    # the driver's output pin on workbench 02 alike
+    le = LineExplorer(library, length=0.28)
+    le.driver_part.value = "nor-flash-spi"  # its one output pin is cipo
+    le.driver_part.value = "mcu-3v3"
+    assert "cipo" in le.pin_note.value and "now" in le.pin_note.value
+    le.driver_pin.value = "cs"
+    assert le.pin_note.value == ""
+
+
 def test_line_explorer_slider_shows_the_resistor_in_use(library):
     le = LineExplorer(library, length=0.28, series="auto")
     rs = le.figures["series_resistor"].value

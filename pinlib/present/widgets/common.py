@@ -28,6 +28,7 @@ import contextlib
 import itertools
 import math
 import os
+import weakref
 from collections.abc import Callable
 from pathlib import Path
 
@@ -348,6 +349,31 @@ def set_options(dropdown, options, keep, *, what: str = "", said: W.HTML | None 
             message = f"no {e(what.lower() or 'choice')} is offered here."
     if said is not None:
         said.value = notice(message) if message else ""
+        if message:
+            _clear_on_next_choice(dropdown, said)
+
+
+#: The observer that empties a note at a dropdown's next choice, by note.
+_CLEARERS: weakref.WeakKeyDictionary = weakref.WeakKeyDictionary()
+
+
+def _clear_on_next_choice(dropdown, said: W.HTML) -> None:
+    """Empty ``said`` when the dropdown's value next changes: a note on what the options'
+    change did ("Mode fast is not offered here: now standard") no longer holds once the
+    user has chosen another value."""
+    old = _CLEARERS.pop(said, None)
+    if old is not None:
+        with contextlib.suppress(ValueError):
+            dropdown.unobserve(old, names="value")
+
+    def clear(change) -> None:
+        with contextlib.suppress(ValueError):
+            dropdown.unobserve(clear, names="value")
+        _CLEARERS.pop(said, None)
+        said.value = ""
+
+    _CLEARERS[said] = clear
+    dropdown.observe(clear, names="value")
 
 
 # =========================================================================== files, views
