@@ -50,3 +50,15 @@ def test_refusals_are_shown_and_nothing_is_written(tmp_path, ibs):
     assert panel.message.value
     panel.set(id="demo-ok", i_ol="3")  # a current without its unit
     assert panel.preview() is None and panel.text is None and panel.message.value
+
+
+def test_a_refused_file_is_named_with_its_line(tmp_path):
+    """The message names the file (and the line) it is about, as the command does."""
+    panel = IbisImporter(tmp_path / "team")
+    panel.set(file=str(tmp_path / "missing.ibs"))
+    assert f"{tmp_path / 'missing.ibs'}</code>: <b>file not found" in panel.message.value
+    bad = tmp_path / "bad.ibs"
+    bad.write_text("not an IBIS file\n")  # invented test data
+    panel.set(file=str(bad))
+    assert f"{bad}:1</code>" in panel.message.value
+
