@@ -62,3 +62,14 @@ def test_a_refused_file_is_named_with_its_line(tmp_path):
     panel.set(file=str(bad))
     assert f"{bad}:1</code>" in panel.message.value
 
+
+
+def test_an_empty_file_box_asks_for_a_path(tmp_path):
+    """An empty box (or a folder) asks for a file rather than reading the working
+    folder ("cannot read the file: Is a directory")."""
+    panel = IbisImporter(tmp_path / "team")
+    for empty in ("", "  ", str(tmp_path)):
+        panel.set(file=empty)
+        assert panel.ibis is None and "a file name is needed" in panel.message.value, \
+            panel.message.value
+        assert "directory" not in panel.message.value

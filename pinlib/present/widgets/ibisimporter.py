@@ -136,8 +136,13 @@ class IbisImporter(_Panel):
         """Read the file named in the first field; offer its components."""
         from pinlib.library.ibis import read_ibis
 
+        path = self.file.value.strip()
         try:
-            self.ibis = read_ibis(self.file.value.strip())
+            if not path or Path(path).is_dir():  # read_ibis("") would read the folder
+                raise InputError(M.FILE_NAME_NEEDED, field="IBIS file", value=path or None,
+                                 expected="the path of an IBIS file, such as "
+                                          "path/to/part.ibs")
+            self.ibis = read_ibis(path)
         except PinlibError as err:
             self.ibis = None
             self.component.options = []
