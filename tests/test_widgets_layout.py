@@ -307,6 +307,17 @@ def test_a_note_on_what_a_change_did_goes_when_the_user_chooses_again(library):
     assert le.pin_note.value == ""
 
 
+def test_the_line_under_the_list_does_not_say_a_part_was_added(library):
+    """The warning under the peripherals offered is about a part not yet placed: it
+    reads as a condition, never as "Added, ..." beside a list that does not hold it."""
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.set(mode="fast-plus")
+    b.pick.value = "adc-i2c"  # rated up to 400 kHz: the library's class
+    said = html.unescape(b.pick_fit.value)
+    assert "If added, adc-i2c would fail this bus (device-speed)" in said, said
+    assert "adc-i2c" not in [p for _, p in b.peripherals]
+
+
 def test_line_explorer_slider_shows_the_resistor_in_use(library):
     le = LineExplorer(library, length=0.28, series="auto")
     rs = le.figures["series_resistor"].value
