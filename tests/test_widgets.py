@@ -816,6 +816,39 @@ def exported(tmp_path_factory):
     return nb, body, page
 
 
+#: A number a person should not meet in a workbook's printed output: a float as Python
+#: writes it ("9.305951865072275e-08", "0.0034869678028752737") or a quantity rounded
+#: to a zero it is not ("0.000 V"). Common practice, no source: three significant
+#: digits with an SI prefix, as the widgets show figures.
+_RAW_NUMBER = re.compile(r"\d\.\d{6,}|\b\d(?:\.\d+)?e[-+]\d+\b|(?<![\d.])0\.0+ ?[A-Za-zΩµ]")
+
+
+def test_raw_number_pattern():
+    for raw in ("pass 1800.0 9.305951865072275e-08", "{'U2': 0.0034869678028752737}",
+                "overshoot 0.000 V (without: 0.703 V)"):
+        assert _RAW_NUMBER.search(raw), raw
+    for fine in ("pass: Rp 1.8 kΩ, rise time 93.1 ns", "max_clock 24 MHz", "0.8473",
+                 "U2: 3.49 mV", "Cb without the probe: 153.9 pF (model: 60.4 pF)"):
+        assert not _RAW_NUMBER.search(fine), fine
+
+
+@pytest.mark.parametrize("name", ["01-start-a-design.ipynb", "02-push-pull-line.ipynb"])
+def test_workbook_prints_quantities_with_units_and_sensible_rounding(name):
+    """What the workbook's own code cells print or show (not the widgets) reads as the
+    widgets do: no float as Python writes it, no quantity rounded to zero."""
+    pytest.importorskip("nbclient")
+    nb = _executed(name)
+    shown = []
+    for cell in nb.cells:
+        for out in cell.get("outputs", []) if cell.cell_type == "code" else []:
+            data = out.get("data", {})
+            if "text/html" in data or "application/vnd.jupyter.widget-view+json" in data:
+                continue  # a widget or the static view: shown as HTML, not as this text
+            shown.append(out.get("text", "") + data.get("text/plain", ""))
+    raw = [m.group(0) for text in shown for m in [_RAW_NUMBER.search(text)] if m]
+    assert not raw, (raw, shown)
+
+
 def test_exported_workbook_embeds_widget_state_and_static_charts(exported):
     nb, body, _ = exported
     state = nb.metadata["widgets"]["application/vnd.jupyter.widget-state+json"]["state"]
