@@ -226,6 +226,20 @@ def test_an_empty_plain_number_is_not_asked_for_a_unit(library):
     assert b.supply.error.expected.endswith("with its unit")
 
 
+def test_an_out_of_range_value_says_how_it_was_read():
+    """"20 mhz" is 20 mHz (a milli prefix): the refusal says so beside the range, which
+    alone leaves the user puzzled; a value read as typed is not repeated."""
+    sb = SpiBudget(DEMO, bus="display")
+    _type(sb.clock, "20 mhz")
+    assert "outside the control's range" in sb.clock.error.problem
+    assert sb.clock.error.hint == "read as 20 mHz"
+    assert "read as 20 mHz" in html.unescape(sb.clock.error_html.value)
+    _type(sb.clock, "10 GHz")
+    assert sb.clock.error.hint is None
+    _type(sb.clock, "10 MHz")
+    assert sb.clock.error is None
+
+
 def test_set_refuses_out_of_range_values_and_writes_the_box(library):
     b = BusBuilder(library, peripherals=["eeprom-i2c"])
     with pytest.raises(InputError, match="range"):

@@ -212,8 +212,14 @@ class QuantityField:
         ok = math.isfinite(value) and (self.lo is None or value >= self.lo) and \
             (self.hi is None or value <= self.hi) and (self.above is None or value > self.above)
         if not ok:
+            # the value as read, where it differs from the text typed: "20 mhz" is read as
+            # 20 mHz (a milli prefix), which the range alone leaves a puzzle
+            typed = isinstance(shown_as, str) and math.isfinite(value)
+            read = _shown(value, self.unit, self.shown) if typed else ""
+            same = read.replace(" ", "") == str(shown_as).replace(" ", "")
             raise InputError(M.OUTSIDE_CONTROL_RANGE, field=self.name, value=shown_as,
-                             expected=self._range_text())
+                             expected=self._range_text(),
+                             hint=None if same or not read else f"read as {read}")
         return value
 
     def read(self, text: str) -> float | None:
