@@ -605,6 +605,20 @@ def test_recorder_new_part_and_value(tmp_path):
     assert c_in.typ == pytest.approx(9e-12, rel=1e-12)
 
 
+def test_recorder_records_next_into_the_part_just_created(tmp_path):
+    """Creating a part turns to the record form: its Team part is the new part, not the
+    one chosen before (a value recorded next would land in another part's file)."""
+    r = PartRecorder(tmp_path / "team")
+    r.set(id="eeprom-acme", extends="eeprom-i2c", new_source="Acme rev B (invented)")
+    assert r.create() is not None and r.part.value == "eeprom-acme"
+    r.set(id="rtc-acme", extends="rtc-i2c")
+    path = r.create()
+    assert r.tabs.selected_index == 1 and r.part.value == "rtc-acme", r.part.value
+    assert "created part rtc-acme" in r.message.value and r.errors == {}
+    r.set(field="sda.c_in", value="9 pF", source="rev A, table 3 (invented)")
+    assert r.record() == path
+
+
 @pytest.mark.parametrize("form, beside, words", [
     ({"value": "12"}, "value", "no unit"),
     ({"value": "12 pH"}, "value", "H where a capacitance"),
