@@ -556,6 +556,37 @@ def test_a_bad_quantity_shows_an_error_beside_its_field(wb):
     assert not failures, "\n  ".join(["bad quantities:"] + failures)
 
 
+# every table cell under the widgets whose whole text is a quantity ("1.86535 ns",
+# "-2.97 ns", "+69 %"): the lines its text takes on the page
+_QUANTITY_CELLS = r"""() => {
+  const panel = document.querySelector('.jp-NotebookPanel:not(.lm-mod-hidden)') || document;
+  const quantity = /^[-+−]?\d[\d.]*(e[-+]?\d+)?\s?[A-Za-zΩµ%°/]*$/;
+  const out = [];
+  for (const td of panel.querySelectorAll('.jupyter-widgets td')) {
+    const text = td.textContent.trim();
+    if (!quantity.test(text) || !td.checkVisibility()) continue;
+    const range = document.createRange();
+    range.selectNodeContents(td);
+    const tops = new Set([...range.getClientRects()].filter(r => r.width > 0)
+                         .map(r => Math.round(r.top)));
+    out.push({text, lines: tops.size});
+  }
+  return out;
+}"""
+
+
+def test_a_quantity_in_a_table_stays_on_one_line(wb):
+    """A value with its unit in a table cell is read as one thing: it never breaks
+    between the number and its unit (the IBIS import's preview wrapped "1.86535 ns")."""
+    if wb.spec.name.startswith("04"):  # the import preview is on the page after Run All
+        wb.page.get_by_text("Values the import writes").first.scroll_into_view_if_needed()
+    cells = wb.page.evaluate(_QUANTITY_CELLS)
+    assert cells, "no quantity in a table"
+    broken = sorted({c["text"] for c in cells if c["lines"] > 1})
+    wb.screenshot("quantities")
+    assert not broken, f"{len(broken)} quantities broken across lines: {broken[:12]}"
+
+
 _STALE_IN_VIEW = """() => {
   const inView = el => { const r = el.getBoundingClientRect();
     return el.checkVisibility() && r.height > 0 && r.bottom > 0 && r.top < innerHeight; };

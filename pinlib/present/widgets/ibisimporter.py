@@ -35,6 +35,7 @@ from pinlib.present.widgets.common import (
 from pinlib.present.widgets.markup import (
     CELL,
     HEAD,
+    NUM,
     TABLE,
     _caption,
     block,
@@ -256,8 +257,11 @@ def values_table(text: str) -> str:
     """An HTML table of the values of a part file's text, each with its provenance."""
     data = tomllib.loads(text)
     body = {k: v for k, v in data.items() if k in ("supply", "pins", "timing")}
+    # the value and typ columns as the figures tables' (a quantity never wraps)
+    styles = (CELL, NUM, NUM, CELL, CELL)
     rows = "".join(
-        "<tr>" + "".join(f'<td style="{CELL}">{e(c)}</td>' for c in row) + "</tr>"
+        "<tr>" + "".join(f'<td style="{st}">{e(c)}</td>'
+                         for st, c in zip(styles, row, strict=True)) + "</tr>"
         for row in _rows("", body))
     head = "".join(f'<th style="{HEAD}">{h}</th>'
                    for h in ("field", "value", "typ", "basis", "source"))
