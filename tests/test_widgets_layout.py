@@ -266,6 +266,17 @@ def test_two_refused_fields_hold_the_panel_until_both_are_valid(library):
     assert le.figures["series_resistor"].value == 0.0  # the "none" set while held
 
 
+def test_bench_reading_writes_the_levels_as_the_dropdown_does(library):
+    """The reading names its levels as the Measured dropdown offers them ("10–90 %"),
+    not in another spelling ("10%–90%")."""
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.levels.value = (0.1, 0.9)
+    b.set(pullup=2200.0, rise_measured=300e-9)
+    shown = html.unescape(b.bench_html.value)
+    label = next(k for k, v in b.levels.options if v == (0.1, 0.9))
+    assert f"({label}, as measured)" in shown, shown
+
+
 def test_bench_inputs_refused_keep_the_reading(library):
     b = BusBuilder(library, peripherals=["eeprom-i2c"])
     b.set(pullup=2200.0, rise_measured=300e-9)

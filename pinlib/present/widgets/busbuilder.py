@@ -514,7 +514,7 @@ class BusBuilder(_Panel):
             f"pull-up on {w.signal.upper()} in parallel): bus capacitance without the probe "
             f"<b>{format_si(cb, 'F')}</b> (the model's Cb: {format_si(w.chosen_cb, 'F')}); "
             f"rise time without the probe <b>{format_si(rise, 's')}</b> "
-            f"({lo:.0%}–{hi:.0%}).</div>")
+            f"({lo * 100:.0f}–{hi * 100:.0f} %, as measured).</div>")
 
     def save(self, path: str | os.PathLike, *, overwrite: bool = False) -> Path:
         """Write the design file atomically, after loading it back as a check.
