@@ -343,6 +343,22 @@ def test_the_line_under_the_list_does_not_say_a_part_was_added(library):
     assert "adc-i2c" not in [p for _, p in b.peripherals]
 
 
+def test_no_peripheral_offered_says_what_would_offer_some(library):
+    """A category none of whose parts holds the rail empties the list: the note says
+    which filters would offer parts, Add is disabled (it did nothing), and the note
+    stays while the list stays empty."""
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.set(category="sensor")  # the library's one sensor is a 1.8 V part; the rail 3.3 V
+    assert list(b.pick.options) == [] and b.add_button.disabled
+    said = html.unescape(b.pick_note.value)
+    assert "no peripheral is offered here" in said and "untick" in said, said
+    b.set(function="gpio")  # another filter, the list still empty: still said
+    assert "no peripheral is offered here" in html.unescape(b.pick_note.value)
+    b.set(function="any", fits_supply=False)
+    assert b.pick.options and not b.add_button.disabled
+    assert "no peripheral" not in b.pick_note.value
+
+
 def test_line_explorer_slider_shows_the_resistor_in_use(library):
     le = LineExplorer(library, length=0.28, series="auto")
     rs = le.figures["series_resistor"].value

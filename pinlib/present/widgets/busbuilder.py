@@ -337,7 +337,10 @@ class BusBuilder(_Panel):
                for k, u in self._pick_unfit.items()]
         if per != list(self.pick.options):
             set_options(self.pick, per, self.pick.value, what="Peripheral",
-                        said=self.pick_note)
+                        said=self.pick_note,
+                        empty="Choose another Category or Also offers, or untick "
+                              "“parts whose supply range holds the rail”.")
+        self.add_button.disabled = not per
         self._show_pick_fit()
 
     def _show_pick_fit(self, change=None) -> None:

@@ -318,7 +318,7 @@ def _name(options, value) -> str:
 
 
 def set_options(dropdown, options, keep, *, what: str = "", said: W.HTML | None = None,
-                unfit: Callable[[object], str] | None = None) -> None:
+                unfit: Callable[[object], str] | None = None, empty: str = "") -> None:
     """Give a dropdown new options without changing its value unannounced.
 
     The value stays when it is still offered.  When it is not:
@@ -327,17 +327,22 @@ def set_options(dropdown, options, keep, *, what: str = "", said: W.HTML | None 
       is kept, listed first with "(does not fit)", and ``said`` tells why;
     * otherwise the first option is taken and ``said`` names the old and the new value.
 
-    ``said`` is emptied when the value stays as an ordinary option.
+    ``said`` is emptied when the value stays as an ordinary option.  When nothing is
+    offered, ``said`` says so, with ``empty`` (what would offer some) after it.
     """
     old = list(dropdown.options)
     values = _values(options)
     message = ""
+    nothing = f"no {e(what.lower() or 'choice')} is offered here." + (
+        f" {e(empty)}" if empty else "")
     if keep in values or keep is None or keep == "":
         dropdown.options = options
         if keep in values:
             dropdown.value = keep
         elif values:
             dropdown.value = values[0]
+        else:  # still nothing to offer: said again, not emptied
+            message = nothing
     elif unfit is not None:
         label = _label_of(old, keep).replace(" (does not fit)", "")
         dropdown.options = [(f"{label} (does not fit)", keep)] + [
@@ -352,7 +357,7 @@ def set_options(dropdown, options, keep, *, what: str = "", said: W.HTML | None 
             message = (f"{e(what)} <b>{e(_name(old, keep))}</b> is not offered here: now "
                        f"<b>{e(_name(options, values[0]))}</b>.")
         else:
-            message = f"no {e(what.lower() or 'choice')} is offered here."
+            message = nothing
     if said is not None:
         said.value = notice(message) if message else ""
         if message:
