@@ -108,6 +108,9 @@ class Spec:
     #: (label, bad text, valid text): a field far down the controls, refused; the stale
     #: state must then show in the viewport (the notice atop the outputs is out of it)
     low_bad: tuple[str, str, str] | None = None
+    #: dropdowns each of whose options, chosen, must show whole (or with its whole text
+    #: on the line under it): the sideways test sees only the option Run All left
+    each_option: tuple[str, ...] = ()
 
 
 #: the per-length trace values, shown for a trace given per length only
@@ -131,7 +134,8 @@ SPECS = [
          bad=(("Length", "-5 cm", None),),
          may_hide=_PER_LENGTH,
          long_item=("Receiver", "board-to-board-connector", "Add", "Receivers"),
-         low_bad=("Length", "abc", "10 cm")),
+         low_bad=("Length", "abc", "10 cm"),
+         each_option=("Waveforms at",)),
     Spec("03-spi-timing.ipynb",
          required=("Bus", "Clock", "SPI mode"),
          change=("Bus", None),
@@ -480,6 +484,29 @@ def test_a_long_item_shows_whole_in_its_list(wb):
         wb.settle()
         wb.click_button("Remove")
         wb.settle()
+
+
+def test_each_option_of_a_dropdown_shows_whole(wb):
+    """Every option of the dropdowns named, chosen in turn, shows whole: a receiver
+    "U2  display-controller-spi: sclk" cut to "...: scl" names another signal."""
+    spec: Spec = wb.spec
+    if not spec.each_option:
+        pytest.skip("no dropdown of this workbook is asked")
+    failures = []
+    for label in spec.each_option:
+        kept = wb.shown_control(label)[0].locator("select").evaluate("s => s.selectedIndex")
+        try:
+            for option in wb.options(label):
+                wb.choose(label, option)
+                wb.settle()
+                cut = [p for p in wb.sideways_problems() if f'"{label}"' in p]
+                if cut:
+                    wb.screenshot("option-cut")
+                failures += cut
+        finally:
+            wb.shown_control(label)[0].locator("select").select_option(index=kept)
+            wb.settle()
+    assert not failures, "\n  ".join(["options cut:"] + failures)
 
 
 def test_chart_text_stays_inside_its_chart(wb):
