@@ -108,6 +108,9 @@ class Spec:
     #: (label, bad text, valid text): a field far down the controls, refused; the stale
     #: state must then show in the viewport (the notice atop the outputs is out of it)
     low_bad: tuple[str, str, str] | None = None
+    #: dropdowns each of whose options, chosen, must show whole (or with its whole text
+    #: on the line under it): the sideways test sees only the option Run All left
+    each_option: tuple[str, ...] = ()
 
 
 #: the per-length trace values, shown for a trace given per length only
@@ -131,7 +134,8 @@ SPECS = [
          bad=(("Length", "-5 cm", None),),
          may_hide=_PER_LENGTH,
          long_item=("Receiver", "board-to-board-connector", "Add", "Receivers"),
-         low_bad=("Length", "abc", "10 cm")),
+         low_bad=("Length", "abc", "10 cm"),
+         each_option=("Waveforms at",)),
     Spec("03-spi-timing.ipynb",
          required=("Bus", "Clock", "SPI mode"),
          change=("Bus", None),
@@ -482,6 +486,29 @@ def test_a_long_item_shows_whole_in_its_list(wb):
         wb.settle()
 
 
+def test_each_option_of_a_dropdown_shows_whole(wb):
+    """Every option of the dropdowns named, chosen in turn, shows whole: a receiver
+    "U2  display-controller-spi: sclk" cut to "...: scl" names another signal."""
+    spec: Spec = wb.spec
+    if not spec.each_option:
+        pytest.skip("no dropdown of this workbook is asked")
+    failures = []
+    for label in spec.each_option:
+        kept = wb.shown_control(label)[0].locator("select").evaluate("s => s.selectedIndex")
+        try:
+            for option in wb.options(label):
+                wb.choose(label, option)
+                wb.settle()
+                cut = [p for p in wb.sideways_problems() if f'"{label}"' in p]
+                if cut:
+                    wb.screenshot("option-cut")
+                failures += cut
+        finally:
+            wb.shown_control(label)[0].locator("select").select_option(index=kept)
+            wb.settle()
+    assert not failures, "\n  ".join(["options cut:"] + failures)
+
+
 def test_chart_text_stays_inside_its_chart(wb):
     found = wb.svg_text()
     if not wb.spec.name.startswith("04"):  # 04 records values; it draws no chart
@@ -554,6 +581,37 @@ def test_a_bad_quantity_shows_an_error_beside_its_field(wb):
         if after != before:
             failures.append(f"{what}: the charts or tables changed")
     assert not failures, "\n  ".join(["bad quantities:"] + failures)
+
+
+# every table cell under the widgets whose whole text is a quantity ("1.86535 ns",
+# "-2.97 ns", "+69 %"): the lines its text takes on the page
+_QUANTITY_CELLS = r"""() => {
+  const panel = document.querySelector('.jp-NotebookPanel:not(.lm-mod-hidden)') || document;
+  const quantity = /^[-+−]?\d[\d.]*(e[-+]?\d+)?\s?[A-Za-zΩµ%°/]*$/;
+  const out = [];
+  for (const td of panel.querySelectorAll('.jupyter-widgets td')) {
+    const text = td.textContent.trim();
+    if (!quantity.test(text) || !td.checkVisibility()) continue;
+    const range = document.createRange();
+    range.selectNodeContents(td);
+    const tops = new Set([...range.getClientRects()].filter(r => r.width > 0)
+                         .map(r => Math.round(r.top)));
+    out.push({text, lines: tops.size});
+  }
+  return out;
+}"""
+
+
+def test_a_quantity_in_a_table_stays_on_one_line(wb):
+    """A value with its unit in a table cell is read as one thing: it never breaks
+    between the number and its unit (the IBIS import's preview wrapped "1.86535 ns")."""
+    if wb.spec.name.startswith("04"):  # the import preview is on the page after Run All
+        wb.page.get_by_text("Values the import writes").first.scroll_into_view_if_needed()
+    cells = wb.page.evaluate(_QUANTITY_CELLS)
+    assert cells, "no quantity in a table"
+    broken = sorted({c["text"] for c in cells if c["lines"] > 1})
+    wb.screenshot("quantities")
+    assert not broken, f"{len(broken)} quantities broken across lines: {broken[:12]}"
 
 
 _STALE_IN_VIEW = """() => {

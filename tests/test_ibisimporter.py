@@ -50,3 +50,26 @@ def test_refusals_are_shown_and_nothing_is_written(tmp_path, ibs):
     assert panel.message.value
     panel.set(id="demo-ok", i_ol="3")  # a current without its unit
     assert panel.preview() is None and panel.text is None and panel.message.value
+
+
+def test_a_refused_file_is_named_with_its_line(tmp_path):
+    """The message names the file (and the line) it is about, as the command does."""
+    panel = IbisImporter(tmp_path / "team")
+    panel.set(file=str(tmp_path / "missing.ibs"))
+    assert f"{tmp_path / 'missing.ibs'}</code>: <b>file not found" in panel.message.value
+    bad = tmp_path / "bad.ibs"
+    bad.write_text("not an IBIS file\n")  # invented test data
+    panel.set(file=str(bad))
+    assert f"{bad}:1</code>" in panel.message.value
+
+
+
+def test_an_empty_file_box_asks_for_a_path(tmp_path):
+    """An empty box (or a folder) asks for a file rather than reading the working
+    folder ("cannot read the file: Is a directory")."""
+    panel = IbisImporter(tmp_path / "team")
+    for empty in ("", "  ", str(tmp_path)):
+        panel.set(file=empty)
+        assert panel.ibis is None and "a file name is needed" in panel.message.value, \
+            panel.message.value
+        assert "directory" not in panel.message.value

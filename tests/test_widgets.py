@@ -605,6 +605,20 @@ def test_recorder_new_part_and_value(tmp_path):
     assert c_in.typ == pytest.approx(9e-12, rel=1e-12)
 
 
+def test_recorder_records_next_into_the_part_just_created(tmp_path):
+    """Creating a part turns to the record form: its Team part is the new part, not the
+    one chosen before (a value recorded next would land in another part's file)."""
+    r = PartRecorder(tmp_path / "team")
+    r.set(id="eeprom-acme", extends="eeprom-i2c", new_source="Acme rev B (invented)")
+    assert r.create() is not None and r.part.value == "eeprom-acme"
+    r.set(id="rtc-acme", extends="rtc-i2c")
+    path = r.create()
+    assert r.tabs.selected_index == 1 and r.part.value == "rtc-acme", r.part.value
+    assert "created part rtc-acme" in r.message.value and r.errors == {}
+    r.set(field="sda.c_in", value="9 pF", source="rev A, table 3 (invented)")
+    assert r.record() == path
+
+
 @pytest.mark.parametrize("form, beside, words", [
     ({"value": "12"}, "value", "no unit"),
     ({"value": "12 pH"}, "value", "H where a capacitance"),
@@ -814,6 +828,39 @@ def exported(tmp_path_factory):
     page = tmp_path_factory.mktemp("export") / "02-push-pull-line.html"
     page.write_text(body, encoding="utf-8")
     return nb, body, page
+
+
+#: A number a person should not meet in a workbook's printed output: a float as Python
+#: writes it ("9.305951865072275e-08", "0.0034869678028752737") or a quantity rounded
+#: to a zero it is not ("0.000 V"). Common practice, no source: three significant
+#: digits with an SI prefix, as the widgets show figures.
+_RAW_NUMBER = re.compile(r"\d\.\d{6,}|\b\d(?:\.\d+)?e[-+]\d+\b|(?<![\d.])0\.0+ ?[A-Za-zΩµ]")
+
+
+def test_raw_number_pattern():
+    for raw in ("pass 1800.0 9.305951865072275e-08", "{'U2': 0.0034869678028752737}",
+                "overshoot 0.000 V (without: 0.703 V)"):
+        assert _RAW_NUMBER.search(raw), raw
+    for fine in ("pass: Rp 1.8 kΩ, rise time 93.1 ns", "max_clock 24 MHz", "0.8473",
+                 "U2: 3.49 mV", "Cb without the probe: 153.9 pF (model: 60.4 pF)"):
+        assert not _RAW_NUMBER.search(fine), fine
+
+
+@pytest.mark.parametrize("name", ["01-start-a-design.ipynb", "02-push-pull-line.ipynb"])
+def test_workbook_prints_quantities_with_units_and_sensible_rounding(name):
+    """What the workbook's own code cells print or show (not the widgets) reads as the
+    widgets do: no float as Python writes it, no quantity rounded to zero."""
+    pytest.importorskip("nbclient")
+    nb = _executed(name)
+    shown = []
+    for cell in nb.cells:
+        for out in cell.get("outputs", []) if cell.cell_type == "code" else []:
+            data = out.get("data", {})
+            if "text/html" in data or "application/vnd.jupyter.widget-view+json" in data:
+                continue  # a widget or the static view: shown as HTML, not as this text
+            shown.append(out.get("text", "") + data.get("text/plain", ""))
+    raw = [m.group(0) for text in shown for m in [_RAW_NUMBER.search(text)] if m]
+    assert not raw, (raw, shown)
 
 
 def test_exported_workbook_embeds_widget_state_and_static_charts(exported):

@@ -213,6 +213,33 @@ def test_quantities_are_read_with_their_units(library):
     assert b.error is None and b.held_html.value == ""
 
 
+def test_an_empty_plain_number_is_not_asked_for_a_unit(library):
+    """εr is a plain number: an empty box asks for the number in its range, not for a
+    unit it has none of; an empty quantity still asks for its unit."""
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    _type(b.trace.er, "")
+    assert b.trace.er.error is not None and "a value is needed" in b.trace.er.error.problem
+    assert "unit" not in b.trace.er.error.expected, b.trace.er.error.expected
+    assert "unit" not in b.trace.er.error_html.value
+    _type(b.trace.er, "4.2")
+    _type(b.supply, "")
+    assert b.supply.error.expected.endswith("with its unit")
+
+
+def test_an_out_of_range_value_says_how_it_was_read():
+    """"20 mhz" is 20 mHz (a milli prefix): the refusal says so beside the range, which
+    alone leaves the user puzzled; a value read as typed is not repeated."""
+    sb = SpiBudget(DEMO, bus="display")
+    _type(sb.clock, "20 mhz")
+    assert "outside the control's range" in sb.clock.error.problem
+    assert sb.clock.error.hint == "read as 20 mHz"
+    assert "read as 20 mHz" in html.unescape(sb.clock.error_html.value)
+    _type(sb.clock, "10 GHz")
+    assert sb.clock.error.hint is None
+    _type(sb.clock, "10 MHz")
+    assert sb.clock.error is None
+
+
 def test_set_refuses_out_of_range_values_and_writes_the_box(library):
     b = BusBuilder(library, peripherals=["eeprom-i2c"])
     with pytest.raises(InputError, match="range"):
@@ -237,6 +264,17 @@ def test_two_refused_fields_hold_the_panel_until_both_are_valid(library):
     _type(le.trace.length, "28 cm")
     assert le.updates == updates + 1 and le.held_html.value == ""
     assert le.figures["series_resistor"].value == 0.0  # the "none" set while held
+
+
+def test_bench_reading_writes_the_levels_as_the_dropdown_does(library):
+    """The reading names its levels as the Measured dropdown offers them ("10–90 %"),
+    not in another spelling ("10%–90%")."""
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.levels.value = (0.1, 0.9)
+    b.set(pullup=2200.0, rise_measured=300e-9)
+    shown = html.unescape(b.bench_html.value)
+    label = next(k for k, v in b.levels.options if v == (0.1, 0.9))
+    assert f"({label}, as measured)" in shown, shown
 
 
 def test_bench_inputs_refused_keep_the_reading(library):
@@ -272,6 +310,53 @@ def test_protocol_change_says_what_the_mode_became(library):
     assert "fast" in b.mode_note.value and b.mode.value in b.mode_note.value
     b.set(protocol="i2c")  # the SMBus mode is no I2C mode either: said again
     assert b.mode_note.value != ""
+
+
+def test_a_note_on_what_a_change_did_goes_when_the_user_chooses_again(library):
+    """"Mode 100k is not offered here: now standard." is true until the user chooses a
+    mode: beside fast-plus it would say the mode is standard."""
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.set(protocol="smbus")
+    b.set(protocol="i2c")
+    assert "now" in b.mode_note.value
+    b.set(mode="fast-plus")
+    assert b.mode_note.value == ""
+    b.set(protocol="smbus")  # said again on the next change of the options
+    assert "fast-plus" in b.mode_note.value
+    # the driver's output pin on workbench 02 alike
+    le = LineExplorer(library, length=0.28)
+    le.driver_part.value = "nor-flash-spi"  # its one output pin is cipo
+    le.driver_part.value = "mcu-3v3"
+    assert "cipo" in le.pin_note.value and "now" in le.pin_note.value
+    le.driver_pin.value = "cs"
+    assert le.pin_note.value == ""
+
+
+def test_the_line_under_the_list_does_not_say_a_part_was_added(library):
+    """The warning under the peripherals offered is about a part not yet placed: it
+    reads as a condition, never as "Added, ..." beside a list that does not hold it."""
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.set(mode="fast-plus")
+    b.pick.value = "adc-i2c"  # rated up to 400 kHz: the library's class
+    said = html.unescape(b.pick_fit.value)
+    assert "If added, adc-i2c would fail this bus (device-speed)" in said, said
+    assert "adc-i2c" not in [p for _, p in b.peripherals]
+
+
+def test_no_peripheral_offered_says_what_would_offer_some(library):
+    """A category none of whose parts holds the rail empties the list: the note says
+    which filters would offer parts, Add is disabled (it did nothing), and the note
+    stays while the list stays empty."""
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.set(category="sensor")  # the library's one sensor is a 1.8 V part; the rail 3.3 V
+    assert list(b.pick.options) == [] and b.add_button.disabled
+    said = html.unescape(b.pick_note.value)
+    assert "no peripheral is offered here" in said and "untick" in said, said
+    b.set(function="gpio")  # another filter, the list still empty: still said
+    assert "no peripheral is offered here" in html.unescape(b.pick_note.value)
+    b.set(function="any", fits_supply=False)
+    assert b.pick.options and not b.add_button.disabled
+    assert "no peripheral" not in b.pick_note.value
 
 
 def test_line_explorer_slider_shows_the_resistor_in_use(library):

@@ -337,7 +337,10 @@ class BusBuilder(_Panel):
                for k, u in self._pick_unfit.items()]
         if per != list(self.pick.options):
             set_options(self.pick, per, self.pick.value, what="Peripheral",
-                        said=self.pick_note)
+                        said=self.pick_note,
+                        empty="Choose another Category or Also offers, or untick "
+                              "“parts whose supply range holds the rail”.")
+        self.add_button.disabled = not per
         self._show_pick_fit()
 
     def _show_pick_fit(self, change=None) -> None:
@@ -514,7 +517,7 @@ class BusBuilder(_Panel):
             f"pull-up on {w.signal.upper()} in parallel): bus capacitance without the probe "
             f"<b>{format_si(cb, 'F')}</b> (the model's Cb: {format_si(w.chosen_cb, 'F')}); "
             f"rise time without the probe <b>{format_si(rise, 's')}</b> "
-            f"({lo:.0%}–{hi:.0%}).</div>")
+            f"({lo * 100:.0f}–{hi * 100:.0f} %, as measured).</div>")
 
     def save(self, path: str | os.PathLike, *, overwrite: bool = False) -> Path:
         """Write the design file atomically, after loading it back as a check.

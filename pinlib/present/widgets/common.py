@@ -28,6 +28,7 @@ import contextlib
 import itertools
 import math
 import os
+import weakref
 from collections.abc import Callable
 from pathlib import Path
 
@@ -201,13 +202,24 @@ class QuantityField:
             return f"{f(self.lo)} or more"
         return f"{f(self.hi)} or less"
 
+    def _needed_text(self) -> str:
+        """What an empty box is told to hold: the range, with the unit where the value has
+        one (a plain number, such as εr, has none)."""
+        return f"{self._range_text()}, with its unit" if self.unit else self._range_text()
+
     def check(self, value: float, shown_as) -> float:
         """``value`` when it is in range; otherwise an InputError naming the range."""
         ok = math.isfinite(value) and (self.lo is None or value >= self.lo) and \
             (self.hi is None or value <= self.hi) and (self.above is None or value > self.above)
         if not ok:
+            # the value as read, where it differs from the text typed: "20 mhz" is read as
+            # 20 mHz (a milli prefix), which the range alone leaves a puzzle
+            typed = isinstance(shown_as, str) and math.isfinite(value)
+            read = _shown(value, self.unit, self.shown) if typed else ""
+            same = read.replace(" ", "") == str(shown_as).replace(" ", "")
             raise InputError(M.OUTSIDE_CONTROL_RANGE, field=self.name, value=shown_as,
-                             expected=self._range_text())
+                             expected=self._range_text(),
+                             hint=None if same or not read else f"read as {read}")
         return value
 
     def read(self, text: str) -> float | None:
@@ -216,8 +228,7 @@ class QuantityField:
         if not text:
             if self.optional:
                 return None
-            raise InputError(M.VALUE_NEEDED, field=self.name,
-                             expected=f"{self._range_text()}, with its unit")
+            raise InputError(M.VALUE_NEEDED, field=self.name, expected=self._needed_text())
         if self.unit == "":
             try:
                 value = float(text)
@@ -246,7 +257,7 @@ class QuantityField:
         if value is None:
             if not self.optional:
                 raise InputError(M.VALUE_NEEDED, field=self.name,
-                                 expected=f"{self._range_text()}, with its unit")
+                                 expected=self._needed_text())
         else:
             value = self.check(float(value), value)
         self.value, self.error = value, None
@@ -307,7 +318,7 @@ def _name(options, value) -> str:
 
 
 def set_options(dropdown, options, keep, *, what: str = "", said: W.HTML | None = None,
-                unfit: Callable[[object], str] | None = None) -> None:
+                unfit: Callable[[object], str] | None = None, empty: str = "") -> None:
     """Give a dropdown new options without changing its value unannounced.
 
     The value stays when it is still offered.  When it is not:
@@ -316,17 +327,22 @@ def set_options(dropdown, options, keep, *, what: str = "", said: W.HTML | None 
       is kept, listed first with "(does not fit)", and ``said`` tells why;
     * otherwise the first option is taken and ``said`` names the old and the new value.
 
-    ``said`` is emptied when the value stays as an ordinary option.
+    ``said`` is emptied when the value stays as an ordinary option.  When nothing is
+    offered, ``said`` says so, with ``empty`` (what would offer some) after it.
     """
     old = list(dropdown.options)
     values = _values(options)
     message = ""
+    nothing = f"no {e(what.lower() or 'choice')} is offered here." + (
+        f" {e(empty)}" if empty else "")
     if keep in values or keep is None or keep == "":
         dropdown.options = options
         if keep in values:
             dropdown.value = keep
         elif values:
             dropdown.value = values[0]
+        else:  # still nothing to offer: said again, not emptied
+            message = nothing
     elif unfit is not None:
         label = _label_of(old, keep).replace(" (does not fit)", "")
         dropdown.options = [(f"{label} (does not fit)", keep)] + [
@@ -341,9 +357,34 @@ def set_options(dropdown, options, keep, *, what: str = "", said: W.HTML | None 
             message = (f"{e(what)} <b>{e(_name(old, keep))}</b> is not offered here: now "
                        f"<b>{e(_name(options, values[0]))}</b>.")
         else:
-            message = f"no {e(what.lower() or 'choice')} is offered here."
+            message = nothing
     if said is not None:
         said.value = notice(message) if message else ""
+        if message:
+            _clear_on_next_choice(dropdown, said)
+
+
+#: The observer that empties a note at a dropdown's next choice, by note.
+_CLEARERS: weakref.WeakKeyDictionary = weakref.WeakKeyDictionary()
+
+
+def _clear_on_next_choice(dropdown, said: W.HTML) -> None:
+    """Empty ``said`` when the dropdown's value next changes: a note on what the options'
+    change did ("Mode fast is not offered here: now standard") no longer holds once the
+    user has chosen another value."""
+    old = _CLEARERS.pop(said, None)
+    if old is not None:
+        with contextlib.suppress(ValueError):
+            dropdown.unobserve(old, names="value")
+
+    def clear(change) -> None:
+        with contextlib.suppress(ValueError):
+            dropdown.unobserve(clear, names="value")
+        _CLEARERS.pop(said, None)
+        said.value = ""
+
+    _CLEARERS[said] = clear
+    dropdown.observe(clear, names="value")
 
 
 # =========================================================================== files, views

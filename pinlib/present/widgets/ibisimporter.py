@@ -35,6 +35,7 @@ from pinlib.present.widgets.common import (
 from pinlib.present.widgets.markup import (
     CELL,
     HEAD,
+    NUM,
     TABLE,
     _caption,
     block,
@@ -136,8 +137,13 @@ class IbisImporter(_Panel):
         """Read the file named in the first field; offer its components."""
         from pinlib.library.ibis import read_ibis
 
+        path = self.file.value.strip()
         try:
-            self.ibis = read_ibis(self.file.value.strip())
+            if not path or Path(path).is_dir():  # read_ibis("") would read the folder
+                raise InputError(M.FILE_NAME_NEEDED, field="IBIS file", value=path or None,
+                                 expected="the path of an IBIS file, such as "
+                                          "path/to/part.ibs")
+            self.ibis = read_ibis(path)
         except PinlibError as err:
             self.ibis = None
             self.component.options = []
@@ -251,8 +257,11 @@ def values_table(text: str) -> str:
     """An HTML table of the values of a part file's text, each with its provenance."""
     data = tomllib.loads(text)
     body = {k: v for k, v in data.items() if k in ("supply", "pins", "timing")}
+    # the value and typ columns as the figures tables' (a quantity never wraps)
+    styles = (CELL, NUM, NUM, CELL, CELL)
     rows = "".join(
-        "<tr>" + "".join(f'<td style="{CELL}">{e(c)}</td>' for c in row) + "</tr>"
+        "<tr>" + "".join(f'<td style="{st}">{e(c)}</td>'
+                         for st, c in zip(styles, row, strict=True)) + "</tr>"
         for row in _rows("", body))
     head = "".join(f'<th style="{HEAD}">{h}</th>'
                    for h in ("field", "value", "typ", "basis", "source"))

@@ -345,7 +345,7 @@ class LineExplorer(_Panel):
         disabled; returns the receiver to draw, None for all."""
         routed = bool(bus.lines[self.signal].route)
         options = [("every receiver", "")] + (
-            [(f"{r}  {p}: {n}", r) for r, p, n in self._receivers] if routed else [])
+            [(f"{r} — {p}: {n}", r) for r, p, n in self._receivers] if routed else [])
         keep = self.receiver_view.value if self.receiver_view.value in _values(options) else ""
         with self._hold():
             if list(self.receiver_view.options) != options:
@@ -409,6 +409,7 @@ class LineExplorer(_Panel):
             heading("Trace"), self.trace.box,
             heading("Termination"), self.series_mode, self.series,
             heading("Placement"), self.placement, self.receiver_view,
+            choice_line(self.receiver_view),
         ]
         outputs = [self.held_html, self.status_html, self.edges.widget, self.waves.widget,
                    self.figures_html, self.notes_html]

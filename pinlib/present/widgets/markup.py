@@ -57,7 +57,12 @@ def notice(text_html: str) -> str:
 
 
 def error_html(err: PinlibError) -> str:
+    """An error as a block: where (its file and line, as the command names them), what,
+    and what would do."""
     bits = [f"<b>{e(err.problem)}</b>"]
+    if err.file:
+        place = err.file if err.line is None else f"{err.file}:{err.line}"
+        bits[0] = f"<code>{e(place)}</code>: {bits[0]}"
     if err.field:
         bits.append(f"field <code>{e(err.field)}</code>")
     if err.value is not None:

@@ -95,5 +95,5 @@ def unfit_sentence(pid: str, unfit: list[Unfit]) -> str:
     if not unfit:
         return ""
     checks = ", ".join(u.check for u in unfit)
-    return (f"Added, {pid} would fail this bus ({checks}): "
+    return (f"If added, {pid} would fail this bus ({checks}): "
             + "; ".join(u.reason for u in unfit) + ".")

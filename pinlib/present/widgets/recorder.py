@@ -251,7 +251,8 @@ class PartRecorder(_Panel):
                                                                                  "form")
             self._show({where: err})
             return None
-        return self._done(path, f"created part {self.new_id.value.strip()} in", path)
+        pid = self.new_id.value.strip()
+        return self._done(path, f"created part {pid} in", path, part=pid)
 
     def record(self) -> Path | None:
         """Record the value of the second form; None (and ``errors``) when refused."""
@@ -291,11 +292,13 @@ class PartRecorder(_Panel):
             return "field"
         return "form"
 
-    def _done(self, path: Path, what: str, shown: Path) -> Path:
+    def _done(self, path: Path, what: str, shown: Path, *, part: str | None = None) -> Path:
         self.tabs.selected_index = 1  # after a new part, its values are recorded next
         self.written = path
         self.library = self._reload()
         self._refresh_parts()
+        if part is not None:  # ... into that part, not the one chosen before
+            self.part.value = part
         self._show({})
         self.message.value = block(f"{e(what)} <code>{e(shown)}</code>")
         return path
