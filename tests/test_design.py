@@ -352,3 +352,15 @@ def test_a_swap_keeping_the_other_buses_builds_the_same_design():
                             for b, o in zip(kept.buses, design.buses, strict=True))
     with pytest.raises(DesignError):
         design.with_parts({"U99": "adc-spi"}, keep_others=True)
+
+
+def test_one_folder_written_as_library_text_gets_the_list_to_write(tmp_path):
+    # library = "parts" said only "not an array"
+    path = tmp_path / "bad.toml"
+    path.write_text(HEAD.replace(f'library = ["{PARTS.as_posix()}"]', 'library = "parts"')
+                    + ONE_BUS.replace("PART", "t-target"), encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    err = info.value
+    assert (err.field, err.line) == ("library", 3)
+    assert 'expected a list, e.g. ["parts"]' in err.message

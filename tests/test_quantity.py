@@ -171,6 +171,21 @@ def test_an_unknown_unit_says_what_was_likely_meant(text, unit, hint):
     assert info.value.hint and hint in info.value.hint, str(info.value)
 
 
+@pytest.mark.parametrize(("text", "hint"), [
+    # "0,7 VDD", "0.7 VCC", "0.7" and "70 %" said only "not a voltage or a multiple of VDD"
+    ("0,7 VDD", 'write "0.7 VDD" (a decimal point, not a comma)'),
+    ("0.7 vcc", 'write "0.7 VDD" (the part\'s own supply is written VDD'),
+    ("VCC - 0,4 V", 'write "VDD - 0.4 V"'),
+    ("0.7", 'write "0.7 VDD" (relative to the supply) or "0.7 V"'),
+    ("70%", 'write "70 % VDD"'),
+])
+def test_a_refused_level_says_what_was_likely_meant(text, hint):
+    with pytest.raises(UnitError) as info:
+        parse_threshold(text, field="pins.sda.v_ih")
+    assert info.value.hint and hint in info.value.hint, str(info.value)
+    parse_threshold(info.value.hint.split('"')[1])  # the suggestion reads
+
+
 def test_a_thousands_comma_is_not_read_as_a_decimal_one():
     with pytest.raises(UnitError) as info:
         parse("1,000 pF", "F")

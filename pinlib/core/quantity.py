@@ -427,11 +427,42 @@ def parse_threshold(text: object, *, field: str | None = None) -> Threshold:
         try:
             offset += k * _parse_text(term, "V", field)
         except UnitError:
-            raise UnitError(M.NOT_A_THRESHOLD, field=field, value=text,
-                            expected=expected) from None
+            raise UnitError(M.NOT_A_THRESHOLD, field=field, value=text, expected=expected,
+                            hint=_threshold_hint(body)) from None
     if not (math.isfinite(scale) and math.isfinite(offset)):
         raise UnitError(M.THRESHOLD_NOT_FINITE, field=field, value=text, expected=expected)
     return Threshold(scale, offset, body)
+
+
+_PERCENT_ALONE = re.compile(rf"^({_NUMBER})\s*%$")
+_VCC = re.compile(r"\bV(?:CC|DDIO|IO)\b", re.IGNORECASE)
+
+
+def _threshold_hint(body: str) -> str | None:
+    """What a refused level most likely meant, when that reads: with a point for a
+    decimal comma ("0,7 VDD"), VDD for the supply named VCC ("0.7 VCC"), or a bare
+    number ("0.7") or percentage ("70 %") given its VDD."""
+    def reads(candidate: str) -> bool:
+        try:
+            parse_threshold(candidate)
+        except UnitError:
+            return False
+        return True
+
+    fixed, why = body, []
+    if re.search(r"\d,\d", fixed):
+        fixed, _ = re.subn(r"(\d),(\d)", r"\1.\2", fixed)
+        why.append("a decimal point, not a comma")
+    if _VCC.search(fixed):
+        fixed = _VCC.sub("VDD", fixed)
+        why.append("the part's own supply is written VDD, a datasheet's VCC too")
+    if why and reads(fixed):
+        return f'write "{fixed}" ({"; ".join(why)})'
+    if re.fullmatch(_NUMBER, body):
+        return f'write "{body} VDD" (relative to the supply) or "{body} V"'
+    if (pct := _PERCENT_ALONE.match(body)) is not None:
+        return f'write "{pct.group(1)} % VDD"'
+    return None
 
 
 def format_value(value, unit: str) -> str:

@@ -483,7 +483,12 @@ def _union(members, name):
 def _array(inner):
     def conv(v, loc, issues):
         if not isinstance(v, (list, tuple)):
-            issues.append(Issue(loc, "type", M.NOT_ARRAY, v))
+            # one text where a list of texts belongs (library = "parts"): the list to write
+            text = (isinstance(v, str) and getattr(inner, "problem", None) == M.NOT_TEXT
+                    and len(v) <= 200 and v.isprintable())
+            quoted = v.replace("\\", "\\\\").replace('"', '\\"') if text else ""
+            expected = f'a list, e.g. ["{quoted}"]' if text else None
+            issues.append(Issue(loc, "type", M.NOT_ARRAY, v, expected=expected))
             return _FAIL
         out = [inner(x, loc + (i,), issues) for i, x in enumerate(v)]
         return _FAIL if any(x is _FAIL for x in out) else tuple(out)
