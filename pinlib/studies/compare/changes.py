@@ -241,6 +241,8 @@ class ValueChange:
     new: dict | None
     #: False for a value of a pin no bus of the design connects (it changes no result)
     connected: bool = True
+    #: The pin a timing value concerns (an SPI peripheral's ``t_valid``: its CIPO pin)
+    timing_pin: str | None = None
 
     @property
     def label(self) -> str:
@@ -248,9 +250,10 @@ class ValueChange:
 
     @property
     def pin(self) -> str | None:
-        """The pin the value belongs to (``pins.cipo.r_out`` -> ``cipo``), else None."""
+        """The pin the value belongs to (``pins.cipo.r_out`` -> ``cipo``; a timing value
+        its :attr:`timing_pin`), else None."""
         head, _, rest = self.key.partition(".")
-        return rest.partition(".")[0] if head == "pins" and rest else None
+        return rest.partition(".")[0] if head == "pins" and rest else self.timing_pin
 
     def format(self, ref: str, part_id: str | None = None) -> str:
         """``U4 SDA c_in 8 pF → 80 pF, source: … [estimate]``; the part file that set
@@ -441,6 +444,36 @@ def _paired_checks(old_c: dict, new_c: dict) -> list[tuple[dict | None, dict | N
     return pairs
 
 
+#: The SPI pin (by function) each timing value concerns, by the device's role: a
+#: peripheral's output times are its CIPO's, its setup and hold its COPI's; a
+#: controller's the other way round.
+_TIMING_FUNCTION = {
+    "peripheral": {"timing.t_valid": "spi-cipo", "timing.t_cs_valid": "spi-cipo",
+                   "timing.t_setup": "spi-copi", "timing.t_hold": "spi-copi",
+                   "timing.t_cs_setup": "spi-cs", "timing.t_cs_hold": "spi-cs"},
+    "controller": {"timing.t_valid": "spi-copi", "timing.t_setup": "spi-cipo",
+                   "timing.t_hold": "spi-cipo"},
+}
+
+
+def _timing_pins(entry: dict) -> dict[str, str]:
+    """The pin each SPI timing value of a snapshot's device concerns, by the value's key
+    (:data:`_TIMING_FUNCTION`; the pin found by its function), for a part whose pin of
+    that function is one pin."""
+    values = entry.get("values", {})
+    by_function: dict[str, list] = {}
+    for key, v in values.items():
+        parts = key.split(".")
+        if len(parts) == 3 and parts[0] == "pins" and parts[2] == "function":
+            by_function.setdefault(v.get("value"), []).append(parts[1])
+    out = {}
+    for key, fn in _TIMING_FUNCTION.get(entry.get("role"), {}).items():
+        pins = by_function.get(fn, [])
+        if len(pins) == 1:
+            out[key] = pins[0]
+    return out
+
+
 def _idle_pins(old: dict | None, new: dict | None) -> set[str]:
     """The pins of a device that no bus connects on either board, or that one of the two
     parts lacks and the other's board leaves unconnected: their values change no result.
@@ -536,10 +569,12 @@ def compare(old_snapshot: dict, new_snapshot: dict, *, threshold: float = DEFAUL
             o, n = old_p.get(ref), new_p.get(ref)
             ov, nv = (o or {}).get("values", {}), (n or {}).get("values", {})
             idle = _idle_pins(o, n)
+            timing = _timing_pins(n or o)
             values = [ValueChange(k, ov.get(k), nv.get(k))
                       for k in list(nv) + [k for k in ov if k not in nv]
                       if not _same_value(ov.get(k), nv.get(k))]
-            values = [ValueChange(v.key, v.old, v.new, v.pin not in idle) for v in values]
+            values = [ValueChange(v.key, v.old, v.new, (v.pin or timing.get(v.key)) not in idle,
+                                  timing.get(v.key)) for v in values]
             old_id, new_id = (o or {}).get("part"), (n or {}).get("part")
             if old_id == new_id and not values:
                 continue
