@@ -8,7 +8,6 @@ import sys
 from pinlib.cli import SUMMARIES
 from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
-from pinlib.present.terminal import write_json
 
 __all__ = ["add_parser", "run"]
 
@@ -80,6 +79,8 @@ def run(args) -> int:
     ranking = rank_candidates(design, args.ref, categories=args.category or None,
                               progress=True if args.progress else None)
     if args.json:
+        from pinlib.present.terminal import write_json
+
         write_json(ranking.to_json(args.top))
     else:
         from pinlib.present.terminal import table_width

@@ -8,7 +8,6 @@ import sys
 from pinlib.cli import SUMMARIES
 from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
-from pinlib.present.terminal import write_json
 
 __all__ = ["add_parser", "run"]
 
@@ -158,6 +157,8 @@ def _run_many(args, paths) -> int:
         if s.save_error is not None:
             print(fitted(f"pinlib: error: {s.save_error}", sys.stderr), file=sys.stderr)
     if args.json:
+        from pinlib.present.terminal import write_json
+
         write_json([_many_json(s) for s in summaries])
     else:
         from pinlib.present.designs import format_many
@@ -237,6 +238,8 @@ def _run_one(args) -> int:
             out["changes"] = changes.to_json()
         for key, value in extra.items():
             out[key] = value.to_json()
+        from pinlib.present.terminal import write_json
+
         write_json(out)
     else:
         sys.stdout.write(render_text(result, args, design_arg=args.design))

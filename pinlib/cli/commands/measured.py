@@ -8,7 +8,6 @@ import sys
 from pinlib.cli import SUMMARIES
 from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
-from pinlib.present.terminal import write_json
 
 __all__ = ["add_parser", "run", "levels_type"]
 
@@ -86,6 +85,8 @@ def run(args) -> int:
     got = compare_rise(design, args.bus, rise, probe, levels=args.levels, signal=args.line,
                        segment=args.segment)
     if args.json:
+        from pinlib.present.terminal import write_json
+
         write_json(got.to_json())
     else:
         from pinlib.present.terminal import table_width

@@ -19,7 +19,6 @@ import sys
 from pinlib.cli import SUMMARIES
 from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
-from pinlib.present.terminal import write_json
 
 __all__ = ["add_parser", "run", "threshold_type", "parse_assignments"]
 
@@ -188,6 +187,8 @@ def run(args) -> int:
     swap_rows = _swap_rows(design, swaps)
 
     if args.json:
+        from pinlib.present.terminal import write_json
+
         write_json({"format": "pinlib.swap/1", "design": design.title, "path": str(design.path),
                    "swaps": swap_rows, "threshold": threshold, "written": written,
                    "before": before.to_json(), "after": after.to_json(),
@@ -243,6 +244,8 @@ def _report_refusals(args, design, refused: list[dict]) -> int:
             print(fitted(f"  - {reason}", sys.stderr), file=sys.stderr)
     print("pinlib: " + M.DESIGN_NOT_CHANGED.format(path=args.design), file=sys.stderr)
     if args.json:
+        from pinlib.present.terminal import write_json
+
         write_json({"format": "pinlib.swap/1", "design": design.title,
                    "path": str(design.path), "refused": refused, "written": False})
     return 2
@@ -413,6 +416,8 @@ def _run_many(args) -> int:
             print(fitted("pinlib: error: " + M.DESIGN_NOT_LOADED.format(
                 path=s.path, message=s.error), sys.stderr), file=sys.stderr)
     if args.json:
+        from pinlib.present.terminal import write_json
+
         write_json({"format": "pinlib.swaps/1", "parts": parts, "write": args.write,
                    "designs": [s.to_json() for s in summaries]})
     else:
