@@ -74,3 +74,22 @@ def test_help_width_is_argparse_own(monkeypatch, env_columns):
     ours, theirs = HelpLayout("pinlib"), argparse.HelpFormatter("pinlib")
     assert (ours._width, ours._max_help_position) == (theirs._width,
                                                       theirs._max_help_position)
+
+
+def test_the_program_help_examples_run_in_an_empty_folder(tmp_path, monkeypatch, capsys):
+    # a user who installed the wheel and types the examples of `pinlib --help` in a
+    # folder of their own: the first one checked workbooks/designs/demo-board.toml,
+    # which only a checkout has ("file not found"); `pinlib demo` makes the copy first
+    import shlex
+
+    from pinlib.cli import EPILOG, main
+
+    monkeypatch.chdir(tmp_path)
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    lines = EPILOG.split("\n\n")[0].splitlines()
+    assert lines[0] == "examples:"
+    for line in lines[1:]:
+        argv = shlex.split(line, comments=True)
+        assert argv[0] == "pinlib"
+        code = main(argv[1:])
+        assert code in (0, 1), (line, capsys.readouterr().err)

@@ -43,7 +43,8 @@ SUMMARIES = {
 
 EPILOG = """\
 examples:
-  pinlib check workbooks/designs/demo-board.toml
+  pinlib demo          # the demo design and the workbooks, into ./pinlib-demo
+  pinlib check pinlib-demo/workbooks/designs/demo-board.toml
   pinlib parts list --function i2c-sda
   pinlib parts show eeprom-i2c
 
