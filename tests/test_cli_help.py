@@ -4,6 +4,7 @@ when the output is not one), prose filled to the width, examples kept as written
 from __future__ import annotations
 
 import argparse
+from pathlib import Path
 
 import pytest
 
@@ -93,3 +94,18 @@ def test_the_program_help_examples_run_in_an_empty_folder(tmp_path, monkeypatch,
         assert argv[0] == "pinlib"
         code = main(argv[1:])
         assert code in (0, 1), (line, capsys.readouterr().err)
+
+
+def test_the_version_is_written_once():
+    # pyproject.toml and pinlib/__init__.py each wrote "0.1.0": `pinlib --version` (and
+    # the reports and snapshots) would go on saying the old one when only the package
+    # metadata was raised; the build now reads pinlib.__version__
+    from pinlib import __version__
+    from pinlib.core.tomlfile import tomllib
+
+    root = Path(__file__).resolve().parents[1]
+    meta = tomllib.loads((root / "pyproject.toml").read_text(encoding="utf-8"))
+    assert "version" not in meta["project"]
+    assert "version" in meta["project"]["dynamic"]
+    assert meta["tool"]["setuptools"]["dynamic"]["version"] == {"attr": "pinlib.__version__"}
+    assert __version__.count(".") >= 2  # a release number, not the attribute's name

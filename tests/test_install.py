@@ -137,6 +137,15 @@ def test_the_wheel_carries_the_code_the_library_and_the_workbooks(installed):
     assert shipped == wanted
 
 
+def test_version_is_the_installed_metadata(installed):
+    # `pinlib --version` reads pinlib.__version__; the wheel's metadata takes its
+    # version from there (pyproject.toml: dynamic)
+    shown = _checked(installed.pinlib("--version"), "pinlib --version").stdout.strip()
+    meta = _checked(installed.python("from importlib.metadata import version; "
+                                     "print(version('pinlib'))"), "metadata").stdout.strip()
+    assert shown == f"pinlib {meta}"
+
+
 def test_schema_design_prints_the_shipped_schema(installed):
     proc = _checked(installed.pinlib("schema", "design"), "pinlib schema design")
     assert json.loads(proc.stdout)["title"].startswith("pinlib design file")
