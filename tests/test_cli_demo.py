@@ -125,3 +125,15 @@ def test_the_package_help_starts_a_python_user_off(tmp_path, monkeypatch, capsys
     out = capsys.readouterr().out
     assert out.splitlines()[0] in ("pass", "warn", "fail")
     assert "UM10204" in out  # the sources of the checks' limits
+
+
+def test_the_demo_design_missing_says_pinlib_demo_copies_it(tmp_path, monkeypatch, capsys):
+    # the README's tour and the commands' examples check workbooks/designs/demo-board.toml,
+    # which only a checkout has: a user of the wheel got "file not found" alone
+    monkeypatch.chdir(tmp_path)
+    code, _out, err = run(capsys, "check", "workbooks/designs/demo-board.toml")
+    assert code == 2 and "file not found" in err
+    assert "pinlib demo" in err and "pinlib-demo/workbooks/designs/demo-board.toml" in err
+    # another missing file is told nothing about the demo
+    code, _out, err = run(capsys, "check", "board.toml")
+    assert code == 2 and "file not found" in err and "pinlib demo" not in err
