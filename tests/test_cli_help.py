@@ -109,3 +109,21 @@ def test_the_version_is_written_once():
     assert "version" in meta["project"]["dynamic"]
     assert meta["tool"]["setuptools"]["dynamic"]["version"] == {"attr": "pinlib.__version__"}
     assert __version__.count(".") >= 2  # a release number, not the attribute's name
+
+
+def test_no_help_page_names_the_checkout_s_demo_path():
+    # the examples of check, report, swap and candidates used workbooks/designs/, a path
+    # only a checkout has; `pinlib demo` makes pinlib-demo/workbooks/designs/ anywhere
+    import re
+
+    def pages(parser):
+        yield parser.prog, parser.format_help()
+        for action in parser._actions:
+            if isinstance(action, argparse._SubParsersAction):
+                for sub in action.choices.values():
+                    yield from pages(sub)
+
+    bare = {prog: ln for prog, text in pages(build_parser()) for ln in text.splitlines()
+            if ln.startswith("  pinlib ")
+            and re.search(r"(?<!pinlib-demo/)workbooks/designs/", ln)}
+    assert not bare, sorted(bare)

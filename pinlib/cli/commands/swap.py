@@ -26,7 +26,7 @@ __all__ = ["add_parser", "run", "threshold_type", "parse_assignments"]
 
 EXAMPLES = """\
 examples:
-  pinlib swap workbooks/designs/demo-board.toml U4=io-expander-i2c
+  pinlib swap pinlib-demo/workbooks/designs/demo-board.toml U4=io-expander-i2c
   pinlib swap board.toml U4=eeprom-hicap U7=nor-flash-spi --threshold 2%
   pinlib swap board.toml U4=eeprom-hicap --library ./parts --write
   pinlib swap board.toml U4=eeprom-hicap --json > swap.json
