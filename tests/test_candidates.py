@@ -325,7 +325,7 @@ def test_cli_help(capsys):
         main(["candidates", "--help"])
     assert exc.value.code == 0
     out = capsys.readouterr().out
-    assert "pinlib candidates workbooks/designs/demo-board.toml U4" in out
+    assert "pinlib candidates pinlib-demo/workbooks/designs/demo-board.toml U4" in out
     for opt in ("--category", "--top", "--json", "--library"):
         assert opt in out
 

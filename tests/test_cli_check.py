@@ -171,7 +171,7 @@ def test_help_has_an_example(capsys):
         main(["check", "--help"])
     assert info.value.code == 0
     out = capsys.readouterr().out
-    assert "pinlib check workbooks/designs/demo-board.toml" in out
+    assert "pinlib check pinlib-demo/workbooks/designs/demo-board.toml" in out
     assert "--json" in out and "--library" in out
 
 

@@ -102,3 +102,38 @@ def test_listed_in_the_commands(capsys):
     with pytest.raises(SystemExit):
         main(["--help"])
     assert "demo" in capsys.readouterr().out
+
+
+def test_the_package_help_starts_a_python_user_off(tmp_path, monkeypatch, capsys):
+    # help(pinlib) showed one line (no description): a user of the wheel learnt neither
+    # the API's entry points nor the extra the widgets need; its example runs on the demo
+    import textwrap
+
+    import pinlib
+
+    doc = pinlib.__doc__
+    for name in ("check_file", "check_design", "load_design", "load_library",
+                 "pinlib --help", "pip install 'pinlib[notebook]'"):
+        assert name in doc, name
+    block = doc.split("::\n\n", 1)[1].split("\n\n", 1)
+    code = textwrap.dedent(block[0] + "\n\n" + block[1].split("\n\n", 1)[0])
+    assert "check_file(" in code and "all_checks()" in code
+    monkeypatch.chdir(tmp_path)
+    assert main(["demo"]) == 0
+    capsys.readouterr()
+    exec(compile(code, "pinlib.__doc__", "exec"), {})
+    out = capsys.readouterr().out
+    assert out.splitlines()[0] in ("pass", "warn", "fail")
+    assert "UM10204" in out  # the sources of the checks' limits
+
+
+def test_the_demo_design_missing_says_pinlib_demo_copies_it(tmp_path, monkeypatch, capsys):
+    # the README's tour and the commands' examples check workbooks/designs/demo-board.toml,
+    # which only a checkout has: a user of the wheel got "file not found" alone
+    monkeypatch.chdir(tmp_path)
+    code, _out, err = run(capsys, "check", "workbooks/designs/demo-board.toml")
+    assert code == 2 and "file not found" in err
+    assert "pinlib demo" in err and "pinlib-demo/workbooks/designs/demo-board.toml" in err
+    # another missing file is told nothing about the demo
+    code, _out, err = run(capsys, "check", "board.toml")
+    assert code == 2 and "file not found" in err and "pinlib demo" not in err

@@ -4,6 +4,7 @@ when the output is not one), prose filled to the width, examples kept as written
 from __future__ import annotations
 
 import argparse
+from pathlib import Path
 
 import pytest
 
@@ -74,3 +75,55 @@ def test_help_width_is_argparse_own(monkeypatch, env_columns):
     ours, theirs = HelpLayout("pinlib"), argparse.HelpFormatter("pinlib")
     assert (ours._width, ours._max_help_position) == (theirs._width,
                                                       theirs._max_help_position)
+
+
+def test_the_program_help_examples_run_in_an_empty_folder(tmp_path, monkeypatch, capsys):
+    # a user who installed the wheel and types the examples of `pinlib --help` in a
+    # folder of their own: the first one checked workbooks/designs/demo-board.toml,
+    # which only a checkout has ("file not found"); `pinlib demo` makes the copy first
+    import shlex
+
+    from pinlib.cli import EPILOG, main
+
+    monkeypatch.chdir(tmp_path)
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    lines = EPILOG.split("\n\n")[0].splitlines()
+    assert lines[0] == "examples:"
+    for line in lines[1:]:
+        argv = shlex.split(line, comments=True)
+        assert argv[0] == "pinlib"
+        code = main(argv[1:])
+        assert code in (0, 1), (line, capsys.readouterr().err)
+
+
+def test_the_version_is_written_once():
+    # pyproject.toml and pinlib/__init__.py each wrote "0.1.0": `pinlib --version` (and
+    # the reports and snapshots) would go on saying the old one when only the package
+    # metadata was raised; the build now reads pinlib.__version__
+    from pinlib import __version__
+    from pinlib.core.tomlfile import tomllib
+
+    root = Path(__file__).resolve().parents[1]
+    meta = tomllib.loads((root / "pyproject.toml").read_text(encoding="utf-8"))
+    assert "version" not in meta["project"]
+    assert "version" in meta["project"]["dynamic"]
+    assert meta["tool"]["setuptools"]["dynamic"]["version"] == {"attr": "pinlib.__version__"}
+    assert __version__.count(".") >= 2  # a release number, not the attribute's name
+
+
+def test_no_help_page_names_the_checkout_s_demo_path():
+    # the examples of check, report, swap and candidates used workbooks/designs/, a path
+    # only a checkout has; `pinlib demo` makes pinlib-demo/workbooks/designs/ anywhere
+    import re
+
+    def pages(parser):
+        yield parser.prog, parser.format_help()
+        for action in parser._actions:
+            if isinstance(action, argparse._SubParsersAction):
+                for sub in action.choices.values():
+                    yield from pages(sub)
+
+    bare = {prog: ln for prog, text in pages(build_parser()) for ln in text.splitlines()
+            if ln.startswith("  pinlib ")
+            and re.search(r"(?<!pinlib-demo/)workbooks/designs/", ln)}
+    assert not bare, sorted(bare)

@@ -4,6 +4,7 @@ check`` over many designs, ``pinlib parts used-by``."""
 from __future__ import annotations
 
 import json
+import re
 from pathlib import Path
 
 import pytest
@@ -548,4 +549,31 @@ def test_new_with_a_team_library_writes_its_library_line(tmp_path, capsys):
     assert 'library = ["../team"]' in path.read_text(encoding="utf-8")
     design = load_design(path)
     assert [d.part_id for d in design.bus("i2c").devices] == ["mcu-3v3", "eeprom-team"]
+    assert main(["check", str(path)]) in (0, 1)
+
+
+def test_a_new_design_explains_itself_without_the_source_documents(tmp_path):
+    # its comments sent the reader to docs/formats/design.md (for the modes, routes and
+    # GPIO buses), a file of the source tree that an installed wheel does not carry
+    from pinlib.standards.i2c import I2C_MODE_NAMES
+    from pinlib.standards.smbus import SMBUS_CLASS_NAMES
+
+    path = tmp_path / "board.toml"
+    assert main(["new", str(path), "--part", "U1=mcu-3v3", "--part", "U2=adc-i2c",
+                 "--part", "U3=nor-flash-spi"]) == 0
+    text = path.read_text(encoding="utf-8")
+    assert "docs/" not in text
+    (mode_note,) = [ln for ln in text.splitlines() if ln.startswith("# mode:")]
+    assert all(f'"{m}"' in mode_note for m in I2C_MODE_NAMES + SMBUS_CLASS_NAMES)
+    # the route shown in a comment is one the loader takes in place of the line
+    lines = text.splitlines()
+    first = next(i for i, ln in enumerate(lines) if ln.startswith("#   lines.sclk = "))
+    example = [ln.removeprefix("#   ") for ln in lines[first:first + 3]]
+    assert example[-1] == "] }"
+    routed = re.sub(r"^lines\.sclk = .*$", "\n".join(example), text, count=1,
+                    flags=re.MULTILINE)
+    path.write_text(routed, encoding="utf-8")
+    (spi,) = [b for b in load_design(path).buses if b.protocol == "spi"]
+    assert re.search(r'^lines\.sclk = \{ series_resistor = "auto", route = \[$', routed,
+                     flags=re.MULTILINE) and spi.devices
     assert main(["check", str(path)]) in (0, 1)

@@ -109,3 +109,28 @@ def test_a_negative_value_reaches_a_positional():
     args = build_parser().parse_args(["parts", "record", "p", "pins.sda.c_in", "-3pF",
                                       "--source", "x"])
     assert args.value == "-3pF"
+
+
+@pytest.mark.parametrize("argv, unknown", [
+    # the Markdown report spelt out: argparse said only that --html or --md is required
+    (["report", "board.toml", "--markdown", "review.md"], "--markdown"),
+    (["report", "board.toml", "--pdf=review.pdf"], "--pdf=review.pdf"),
+    # a required positional missing beside an unknown option
+    (["candidates", "--best"], "--best"),
+])
+def test_an_unknown_option_is_named_before_a_missing_required_argument(argv, unknown,
+                                                                       capsys):
+    with pytest.raises(SystemExit) as exit_:
+        build_parser().parse_args(argv)
+    assert exit_.value.code == 2
+    err = capsys.readouterr().err
+    assert f"error: unrecognized arguments: {unknown}; " in " ".join(err.split())
+    assert "required" in err  # what is missing is still said
+
+
+def test_a_value_or_a_known_option_is_not_called_unknown(capsys):
+    # an option's value that starts with a minus, an abbreviation, a negative quantity
+    with pytest.raises(SystemExit):
+        build_parser().parse_args(["report", "board.toml", "--thresh", "5 %", "--seed", "-3"])
+    err = capsys.readouterr().err
+    assert "unrecognized" not in err and "one of the arguments --html --md" in err

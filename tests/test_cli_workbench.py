@@ -49,6 +49,19 @@ def test_without_voila_it_names_the_extra(monkeypatch, capsys):
     assert "Traceback" not in err
 
 
+def test_without_voila_it_names_the_extra_before_looking_for_workbooks(monkeypatch, capsys,
+                                                                      tmp_path):
+    # a user fresh from `pip install pinlib` who types `pinlib workbench` in an empty
+    # folder: told first what to install (then `pinlib demo` for the workbooks), not sent
+    # to copy workbooks that the command could not serve anyway
+    monkeypatch.setitem(sys.modules, "voila", None)  # as if not installed
+    code = main(["workbench", str(tmp_path)])
+    err = capsys.readouterr().err
+    assert code == 2
+    assert "'notebook' extra" in err and "pip install 'pinlib[notebook]'" in err
+    assert "Traceback" not in err
+
+
 def test_the_page_template_keeps_every_request_on_this_machine(tmp_path):
     folder = workbench.write_template(tmp_path) / "voila" / "templates" / workbench.TEMPLATE
     text = (folder / "index.html.j2").read_text(encoding="utf-8")

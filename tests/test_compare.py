@@ -19,6 +19,7 @@ import pytest
 from pinlib.cli import main
 from pinlib.core.errors import InputError, UnitError
 from pinlib.engines.dispatch import check_design
+from pinlib.library.loader import BUILTIN_DIR
 from pinlib.model.design import load_design
 from pinlib.studies.compare import (
     ChangeList,
@@ -691,6 +692,18 @@ def test_swap_text_fits_the_width_without_colour(board, capsys, monkeypatch):
     assert max(len(ln) for ln in out.splitlines()) <= 80
     assert "\x1b[" not in out  # capsys is not a terminal
     assert "every figure before and after: --detail" in out
+
+
+def test_swap_names_a_built_in_part_file_as_the_part_values_do(board, capsys, monkeypatch):
+    # installed from a wheel, the substitution line gave the part's file in full
+    # (/.../lib/python3.11/site-packages/pinlib/devices/...), cut across two lines at 80
+    # columns, where the part values under it said builtin:memory/eeprom-i2c.toml
+    monkeypatch.setenv("COLUMNS", "80")
+    assert main(["swap", str(board), "U4=eeprom-i2c"]) == 0
+    out = capsys.readouterr().out
+    (line,) = [ln for ln in out.splitlines() if ln.startswith("  U4: ")]
+    assert line.endswith("[builtin:memory/eeprom-i2c.toml]")
+    assert str(BUILTIN_DIR) not in out
 
 
 def test_swap_json(board, capsys):

@@ -137,6 +137,15 @@ def test_the_wheel_carries_the_code_the_library_and_the_workbooks(installed):
     assert shipped == wanted
 
 
+def test_version_is_the_installed_metadata(installed):
+    # `pinlib --version` reads pinlib.__version__; the wheel's metadata takes its
+    # version from there (pyproject.toml: dynamic)
+    shown = _checked(installed.pinlib("--version"), "pinlib --version").stdout.strip()
+    meta = _checked(installed.python("from importlib.metadata import version; "
+                                     "print(version('pinlib'))"), "metadata").stdout.strip()
+    assert shown == f"pinlib {meta}"
+
+
 def test_schema_design_prints_the_shipped_schema(installed):
     proc = _checked(installed.pinlib("schema", "design"), "pinlib schema design")
     assert json.loads(proc.stdout)["title"].startswith("pinlib design file")
@@ -185,6 +194,32 @@ def test_check_and_report_run_on_the_demo(installed, demo_copy):
     text = html.read_text(encoding="utf-8")
     assert "<svg" in text
     assert all(bus in text for bus in buses)
+
+
+def test_the_rest_of_the_tour_runs_from_the_wheel(installed, demo_copy):
+    # what a new user tries after the demo: the Markdown report, a part, a starter
+    # design, the candidates and a swap at a position, and the workbench without Voila
+    design = str((demo_copy / "workbooks" / "designs" / "demo-board.toml")
+                 .relative_to(installed.work))
+    proc = installed.pinlib("report", design, "--md", "review.md")
+    assert proc.returncode in (0, 1), proc.stderr
+    assert (installed.work / "review-charts").is_dir()
+    assert "eeprom-i2c" in _checked(installed.pinlib("parts", "show", "eeprom-i2c"),
+                                    "parts show").stdout
+    _checked(installed.pinlib("new", "board.toml", "--part", "U1=mcu-3v3", "--part",
+                              "U2=eeprom-i2c", "--part", "U3=nor-flash-spi"), "pinlib new")
+    assert "docs/" not in (installed.work / "board.toml").read_text(encoding="utf-8")
+    assert installed.pinlib("check", "board.toml").returncode in (0, 1)
+    assert "eeprom-i2c *" in _checked(installed.pinlib("candidates", design, "U4", "--top",
+                                                       "20"), "candidates").stdout
+    proc = installed.pinlib("swap", design, "U4=rtc-i2c")
+    assert proc.returncode in (0, 1), proc.stderr
+    assert "[builtin:" in proc.stdout and "site-packages" not in proc.stdout
+    proc = installed.pinlib("workbench")  # in a folder without workbooks, too
+    assert proc.returncode == 2 and "Traceback" not in proc.stderr
+    assert "pip install 'pinlib[notebook]'" in proc.stderr
+    doc = _checked(installed.python("import pinlib; help(pinlib)"), "help").stdout
+    assert "check_file" in doc and "pip install 'pinlib[notebook]'" in doc
 
 
 def test_every_command_answers_help_without_the_extras(installed):

@@ -3090,6 +3090,12 @@ def _(env):
     return _demo_twice(env)
 
 
+@case("DEMO_DESIGN_HINT")
+def _(env):
+    env.monkeypatch.chdir(env.tmp)
+    return env.cli("check", "workbooks/designs/demo-board.toml")
+
+
 # ---------------------------------------------------------------- command workbench
 @case("NO_WORKBOOKS_IN_FOLDER")
 def _(env):

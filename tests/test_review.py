@@ -723,7 +723,8 @@ def test_command_arguments(tmp_path, capsys):
     with pytest.raises(SystemExit) as exc:
         main(["report", "--help"])
     assert exc.value.code == 0
-    assert "pinlib report workbooks/designs/demo-board.toml --html" in capsys.readouterr().out
+    assert "pinlib report pinlib-demo/workbooks/designs/demo-board.toml --html" in \
+        capsys.readouterr().out
 
 
 def test_command_with_monte_carlo(tmp_path, capsys):

@@ -43,7 +43,8 @@ SUMMARIES = {
 
 EPILOG = """\
 examples:
-  pinlib check workbooks/designs/demo-board.toml
+  pinlib demo          # the demo design and the workbooks, into ./pinlib-demo
+  pinlib check pinlib-demo/workbooks/designs/demo-board.toml
   pinlib parts list --function i2c-sda
   pinlib parts show eeprom-i2c
 
@@ -72,9 +73,47 @@ class _Parser(argparse.ArgumentParser):
         super().__init__(*args, **kwargs)
         self._negative_number_matcher = _NEGATIVE_VALUE
 
+    def parse_known_args(self, args=None, namespace=None):
+        # the words this parser reads, for error(): a subcommand's parser gets its own
+        self._given = list(sys.argv[1:] if args is None else args)
+        return super().parse_known_args(args, namespace)
+
+    def _unknown_options(self) -> list[str]:
+        """The words given to this parser that look like options it does not know
+        (``--markdown`` where it knows ``--md``); a value after an option that takes one
+        and every word after ``--`` are not options."""
+        known = self._option_string_actions
+        out, skip = [], False
+        for arg in getattr(self, "_given", ()):
+            if skip:
+                skip = False
+                continue
+            if arg == "--":
+                break
+            if not arg.startswith("-") or arg == "-" or self._negative_number_matcher.match(arg):
+                continue
+            name = arg.split("=", 1)[0]
+            hits = [a for k, a in known.items()
+                    if k == name or (self.allow_abbrev and name.startswith("--")
+                                     and k.startswith(name))]
+            if not hits:
+                out.append(arg)
+            elif "=" not in arg and hits[0].nargs != 0:
+                skip = True
+        return out
+
     def error(self, message: str):
         from pinlib.present.terminal import fitted
 
+        # argparse reports a missing required argument before an option it does not
+        # know, so "report DESIGN --markdown FILE" said only that --html or --md is
+        # required: the word it did not know comes first
+        required = (argparse._("the following arguments are required: %s").split("%s")[0],
+                    argparse._("one of the arguments %s is required").split("%s")[0])
+        unknown = self._unknown_options() if message.startswith(required) else []
+        if unknown:
+            message = (argparse._("unrecognized arguments: %s") % " ".join(unknown)
+                       + f"; {message}")
         self.print_usage(sys.stderr)
         self.exit(2, fitted(f"{self.prog}: error: {message}", sys.stderr) + "\n")
 

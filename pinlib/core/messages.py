@@ -540,6 +540,8 @@ INSTALL_EXTRA = "install it with: pip install 'pinlib[{extra}]'"
 DEMO_FILES_MISSING = "the demo files are not part of this installation of pinlib"
 DEMO_WOULD_OVERWRITE = "the folder already holds {n} of the demo's files ({names})"
 DEMO_FORCE_HINT = "--force overwrites them, or name another folder"
+DEMO_DESIGN_HINT = ("pinlib demo copies the demo design out of the package (then: pinlib "
+                    "check pinlib-demo/workbooks/designs/demo-board.toml)")
 
 # ---------------------------------------------------------------- command workbench
 NO_WORKBOOKS_IN_FOLDER = "no workbooks (*.ipynb) in the folder or in its workbooks/ folder"

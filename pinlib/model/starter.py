@@ -21,6 +21,8 @@ from pinlib.core import protocols
 from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
 from pinlib.core.wrapping import wrap
+from pinlib.standards.i2c import I2C_MODE_NAMES
+from pinlib.standards.smbus import SMBUS_CLASS_NAMES
 
 __all__ = ["Placement", "starter_text", "STARTER_GEOMETRY"]
 
@@ -50,6 +52,12 @@ def _noted(code: str, note: str) -> str:
     if len(code) < NOTE_COLUMN and NOTE_COLUMN + 2 + len(note) <= WIDTH:
         return f"{code.ljust(NOTE_COLUMN)}# {note}"
     return f"# {note}\n{code}"
+
+
+def _choices(names) -> str:
+    """``("a", "b", "c")`` -> ``'"a", "b" or "c"'``."""
+    quoted = [f'"{n}"' for n in names]
+    return ", ".join(quoted[:-1]) + " or " + quoted[-1] if len(quoted) > 1 else quoted[0]
 
 
 def _toml_string(text: str) -> str:
@@ -161,8 +169,8 @@ def _bus(group, members, bridges=()) -> tuple[list[str], bool]:
            "[[bus]]", f'id = "{proto.name}"',
            _noted(kind, "or " + " or ".join(f'"{o}"' for o in others)) if others else kind]
     if proto.open_drain:
-        out += [_noted('mode = "standard"', "see docs/formats/design.md for the modes"),
-                'clock = "100 kHz"']
+        out += [f"# mode: I2C {_choices(I2C_MODE_NAMES)}; SMBus {_choices(SMBUS_CLASS_NAMES)}",
+                'mode = "standard"', 'clock = "100 kHz"']
         segments = _segments(members, ctrl, bridges[0]) if len(bridges) == 1 else None
         if segments is None:
             return out + _open_drain_rail(members, ctrl), False
@@ -178,9 +186,15 @@ def _bus(group, members, bridges=()) -> tuple[list[str], bool]:
             _noted(f'supply = "{supply}"', "the rail of the I/O: check it"),
             'supply_tolerance = "5 %"']
     out += _device_lines(members, ctrl)
-    out.append("# placeholders: each line's routed length (a `route` puts each device at "
-               "its own")
-    out.append("# place: docs/formats/design.md)")
+    # the design format's documents are not in an installed wheel: the comment shows
+    # the form of a route itself
+    far = next((pl.ref for pl, _ in members if pl is not ctrl), "U2")
+    out += ["# placeholders: each line's routed length; a `route` instead puts each",
+            "# device at its own place, as stretches between refs or junctions, e.g.",
+            '#   lines.sclk = { series_resistor = "auto", route = [',
+            f'#     {{ from = "{ctrl.ref}", to = "{far}", length = "5 cm", '
+            'geometry = "outer" },',
+            "#   ] }"]
     for sig in proto.signal_names:
         if sig in ("sclk", "cs") or any(sig in _serves(p, proto) for pl, p in members
                                         if pl is not ctrl):
@@ -239,8 +253,9 @@ def starter_text(title: str, placed: list[tuple[Placement, object]],
     gpio = [f"{pl.ref}.{name}" for pl, p in placed
             for name, pin in p.pins.items() if pin.function == "gpio"]
     if gpio:
-        out += ["", *wrap("GPIO pins of these parts (a gpio bus per line, see "
-                          "docs/formats/design.md): " + ", ".join(gpio), WIDTH, "# ", "")]
+        out += ["", *wrap('GPIO pins of these parts (a bus with protocol = "gpio" carries '
+                          "them, a `lines.NAME` each, a device's `pin` naming its pin): "
+                          + ", ".join(gpio), WIDTH, "# ", "")]
     left = [pl.ref for pl, _ in placed if pl.ref not in on_bus]
     if left:
         out += ["", *wrap("On no bus (no protocol they share with another part): "

@@ -13,7 +13,7 @@ __all__ = ["add_parser", "run"]
 
 EXAMPLES = """\
 examples:
-  pinlib candidates workbooks/designs/demo-board.toml U4
+  pinlib candidates pinlib-demo/workbooks/designs/demo-board.toml U4
   pinlib candidates board.toml U4 --category memory --category sensor --top 5
   pinlib candidates board.toml U1 --library ./parts --json > u1.json
 

@@ -13,7 +13,7 @@ __all__ = ["add_parser", "run"]
 
 EXAMPLES = """\
 examples:
-  pinlib check workbooks/designs/demo-board.toml
+  pinlib check pinlib-demo/workbooks/designs/demo-board.toml
   pinlib check board.toml --detail       # every figure and check, with sources
   pinlib check board.toml --quiet        # only the problems
   pinlib check board.toml --json > result.json

@@ -21,7 +21,7 @@ __all__ = ["add_parser", "run", "chart_dir_for", "MONTE_CARLO_MODULES"]
 
 EXAMPLES = """\
 examples:
-  pinlib report workbooks/designs/demo-board.toml --html demo-review.html
+  pinlib report pinlib-demo/workbooks/designs/demo-board.toml --html review.html
   pinlib report board.toml --md review/board.md  # charts: review/board-charts/
   pinlib report board.toml --html review.html --library ./parts
   pinlib report board.toml --html review.html --monte-carlo 10000 --seed 1

@@ -15,6 +15,7 @@ from __future__ import annotations
 import argparse
 import re
 import sys
+from pathlib import Path
 
 from pinlib.cli import SUMMARIES
 from pinlib.cli.helptext import HelpLayout
@@ -24,7 +25,7 @@ __all__ = ["add_parser", "run", "threshold_type", "parse_assignments"]
 
 EXAMPLES = """\
 examples:
-  pinlib swap workbooks/designs/demo-board.toml U4=io-expander-i2c
+  pinlib swap pinlib-demo/workbooks/designs/demo-board.toml U4=io-expander-i2c
   pinlib swap board.toml U4=eeprom-hicap U7=nor-flash-spi --threshold 2%
   pinlib swap board.toml U4=eeprom-hicap --library ./parts --write
   pinlib swap board.toml U4=eeprom-hicap --json > swap.json
@@ -332,6 +333,20 @@ def _moved(rows) -> list[str]:
     return ["  " + c.format() for c in shown_changes(moved)]
 
 
+def _file_shown(path: str) -> str:
+    """A part's file as the text names it: ``builtin:memory/eeprom-i2c.toml`` for a
+    built-in part (as the part values under it do; installed, the full path runs through
+    site-packages), relative to the working folder when inside it, else as given."""
+    from pinlib.library.loader import BUILTIN_DIR
+    from pinlib.present.terminal import shown_path
+
+    try:
+        return "builtin:" + Path(path).resolve().relative_to(
+            Path(BUILTIN_DIR).resolve()).as_posix()
+    except ValueError:
+        return shown_path(path)
+
+
 def _text(design, swap_rows, rows, before, after, changes, detail=False) -> list[str]:
     """The substitutions, the status, the checks whose status changed, the figures that
     moved and the part values behind them, as lines of text; with ``detail`` every figure
@@ -340,7 +355,7 @@ def _text(design, swap_rows, rows, before, after, changes, detail=False) -> list
     for s in swap_rows:
         same = " (unchanged)" if s["old"] == s["new"] else ""
         out.append(f"  {s['ref']}: {s['old']} → {s['new']}{same}"
-                   + (f"  [{s['file']}]" if s["file"] else ""))
+                   + (f"  [{_file_shown(s['file'])}]" if s["file"] else ""))
     out.append("")
     out.append(f"Status: {before.status.upper()} → {after.status.upper()}")
     if changes.status_changes:

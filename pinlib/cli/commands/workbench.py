@@ -207,10 +207,13 @@ def run(args) -> int:
     from pinlib.cli.startup import child_environment
     from pinlib.core import extras
 
-    folder = workbook_folder(args.folder)
+    # the extra first: without it no folder can be served, and a user fresh from
+    # `pip install pinlib` in an empty folder learns what to install before being sent
+    # to `pinlib demo` for workbooks
     for module in ("voila", "ipywidgets", "ipykernel"):
         if importlib.util.find_spec(module) is None:
             extras.need(module, extra="notebook", feature="pinlib workbench")
+    folder = workbook_folder(args.folder)
     port = free_port(args.port)
     url = f"http://{HOST}:{port}/"
     old = {s: signal.signal(s, _raise_stop) for s in (signal.SIGTERM, signal.SIGHUP)}

@@ -21,6 +21,9 @@ from pinlib.library.loader import Library, load_library, record_errors
 from pinlib.model.design.build import Design, _build
 from pinlib.model.design.raw import FORMAT, RawDesign
 
+#: The demo design's file name (``workbooks/designs/demo-board.toml``).
+DEMO_DESIGN_NAME = "demo-board.toml"
+
 
 def load_design(path: str | os.PathLike, *, library_folders=(), library: Library | None = None,
                 swaps: dict[str, str] | None = None) -> Design:
@@ -39,7 +42,14 @@ def load_design(path: str | os.PathLike, *, library_folders=(), library: Library
         Parts to substitute, by reference designator.
     """
     path = Path(path)
-    data, text = load(path, error=DesignError)
+    try:
+        data, text = load(path, error=DesignError)
+    except DesignError as exc:
+        # the demo design at the path a checkout has it (the README's tour, the commands'
+        # examples): an installed pinlib carries it inside the package, for `pinlib demo`
+        if exc.problem == M.FILE_NOT_FOUND and path.name == DEMO_DESIGN_NAME:
+            raise exc.with_hint(M.DEMO_DESIGN_HINT) from None
+        raise
     return design_from_text(data, text, path, library_folders=library_folders, library=library,
                             swaps=swaps)
 
