@@ -51,6 +51,8 @@ How a line is built
 Checks on each line: ``overshoot`` and ``undershoot`` against each pin's ``abs_max``
 (at that pin's own supply), ``ringing`` (re-crossings of VIH/VIL after the first
 crossing: a failure on SCLK, where it clocks twice, a warning on data lines),
+(at a receiver with ``hysteresis``, only a swing back past VIH less it after a rise, or
+VIL plus it after a fall: where a Schmitt-trigger input can switch back),
 ``edge-time`` (the 10–90 % edge under :data:`EDGE_FRACTION` of the clock period: a rule
 of thumb, so it warns and never fails), ``line-delay`` (the one-way delay within one clock
 period, a rule of thumb that flags a design outside a board-level bus), and ``level-high`` /
