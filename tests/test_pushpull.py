@@ -662,3 +662,26 @@ def test_docstring_examples():
     results = [doctest.testmod(m, optionflags=doctest.NORMALIZE_WHITESPACE) for m in modules]
     assert sum(r.attempted for r in results) > 0
     assert sum(r.failed for r in results) == 0
+
+
+def test_a_record_that_never_settles_keeps_its_own_time_axis(tmp_path):
+    # invented, deliberately absurd per-length values inside the loader's ranges: 10 MΩ
+    # (1 µs/m over 0.001 pF/cm) driven through 20 Ω rings for far longer than the
+    # record's last lengthening; the last record is kept, unsettled, on its own grid
+    # (the engine used to return the next, longer grid with it and stop on an internal
+    # shape error)
+    d = _design(tmp_path, """
+[[bus]]
+id = "reset"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "pp-ctrl", role = "controller", pin = "reset" },
+  { ref = "U2", part = "pp-periph", pin = "reset" },
+]
+lines.reset = { length = "10 cm", capacitance = "0.001 pF/cm", delay = "1 µs/m" }
+""")
+    (ln,) = evaluate_bus(d.bus("reset"), d).lines
+    assert any("had not settled" in n for n in ln.notes)
+    assert all(math.isfinite(f.value) for f in ln.figures.values()
+               if isinstance(f.value, float))
