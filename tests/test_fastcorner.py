@@ -191,3 +191,13 @@ def test_the_fast_corner_judges_electrical_length_and_sizes_auto_series(lib):
     # than the fast part's through the same 39 Ω
     f_both, f_fast = a_both.result.figures, a_fast.result.figures
     assert f_both["edge_rise_time"].value > f_fast["edge_rise_time"].value
+
+
+def test_auto_series_note_says_it_matched_the_fast_corner(lib):
+    # the pin's own r_out is 40 Ω: a note reading "r_out 12 Ω" alone left the user to
+    # guess where 12 Ω came from (the fast corner, which "auto" sizes for)
+    a_both, a_slow = _auto_line_of(lib, "both"), _auto_line_of(lib, "slow-only")
+    (note,) = [n for n in a_both.result.notes if n.startswith("auto series resistor")]
+    assert "r_out 12 Ω of U1.sclk at its fast corner" in note
+    (note,) = [n for n in a_slow.result.notes if n.startswith("auto series resistor")]
+    assert "fast corner" not in note

@@ -531,6 +531,27 @@ lines.irq = { length = "6 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }
     assert only == "U2"  # one driver: the level checks name the receiver alone
 
 
+def test_gpio_open_drain_sink_ramp_is_noted(tmp_path):
+    # the part format gives an open-drain sink no edge times: its fall ramp is the
+    # documented 1 ns default (docs/formats/part.md), which the notes must say, as
+    # they do for a push-pull pin without edge points
+    d = _design(tmp_path, """
+[[bus]]
+id = "irq"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "pp-ctrl", role = "controller", pin = "irq" },
+  { ref = "U2", part = "pp-periph", pin = "irq" },
+  { ref = "M1", part = "pp-pullup-module", pin = "irq" },
+]
+lines.irq = { length = "6 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }
+""")
+    (ln,) = evaluate_bus(d.bus("irq"), d).lines
+    (note,) = [n for n in ln.notes if "open-drain sink" in n]
+    assert note.startswith("U2.irq: fall:") and "1 ns" in note and "no source" in note
+
+
 def test_level_checks_name_the_driver_on_a_line_of_two(tmp_path):
     # two controllers may drive one GPIO line (built-in classes, invented board): each
     # level check names its receiver and the driver it is from, so none repeats
@@ -641,3 +662,26 @@ def test_docstring_examples():
     results = [doctest.testmod(m, optionflags=doctest.NORMALIZE_WHITESPACE) for m in modules]
     assert sum(r.attempted for r in results) > 0
     assert sum(r.failed for r in results) == 0
+
+
+def test_a_record_that_never_settles_keeps_its_own_time_axis(tmp_path):
+    # invented, deliberately absurd per-length values inside the loader's ranges: 10 MΩ
+    # (1 µs/m over 0.001 pF/cm) driven through 20 Ω rings for far longer than the
+    # record's last lengthening; the last record is kept, unsettled, on its own grid
+    # (the engine used to return the next, longer grid with it and stop on an internal
+    # shape error)
+    d = _design(tmp_path, """
+[[bus]]
+id = "reset"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "pp-ctrl", role = "controller", pin = "reset" },
+  { ref = "U2", part = "pp-periph", pin = "reset" },
+]
+lines.reset = { length = "10 cm", capacitance = "0.001 pF/cm", delay = "1 µs/m" }
+""")
+    (ln,) = evaluate_bus(d.bus("reset"), d).lines
+    assert any("had not settled" in n for n in ln.notes)
+    assert all(math.isfinite(f.value) for f in ln.figures.values()
+               if isinstance(f.value, float))

@@ -42,12 +42,17 @@ How a line is built
   one (what a series resistor cures; the choice so does not depend on the clock);
   otherwise ``Rs = Z0 - r_out`` (Z0 of the first section, ``r_out`` the mean of the driver's
   rise and fall resistance; on CIPO the strongest driver's) rounded to the nearest
-  E24 value (by ratio), and the line evaluated again.  The check
+  E24 value (by ratio), and the line evaluated again.  Where the sections differ in
+  Z0 (a short trace into a cable) the match of each section's Z0 is tried and the one
+  that leaves the least overshoot and undershoot kept: a short first section hides
+  behind the next, and matching it alone can leave the rest undamped.  The check
   ``series-termination`` holds the edge, overshoot and undershoot with and without it.
 
 Checks on each line: ``overshoot`` and ``undershoot`` against each pin's ``abs_max``
 (at that pin's own supply), ``ringing`` (re-crossings of VIH/VIL after the first
 crossing: a failure on SCLK, where it clocks twice, a warning on data lines),
+(at a receiver with ``hysteresis``, only a swing back past VIH less it after a rise, or
+VIL plus it after a fall: where a Schmitt-trigger input can switch back),
 ``edge-time`` (the 10–90 % edge under :data:`EDGE_FRACTION` of the clock period: a rule
 of thumb, so it warns and never fails), ``line-delay`` (the one-way delay within one clock
 period, a rule of thumb that flags a design outside a board-level bus), and ``level-high`` /

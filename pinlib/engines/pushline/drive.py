@@ -8,6 +8,7 @@ from collections.abc import Sequence
 from typing import TYPE_CHECKING
 
 from pinlib.core.errors import PinlibError
+from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
 from pinlib.engines import memo
 from pinlib.engines.pushline.pins import Endpoint, Flight
@@ -156,7 +157,12 @@ def _pullups(loads: Sequence[Endpoint], driver: Endpoint) -> tuple[float | None,
     return (1.0 / g if g > 0 else None), (rail if rail is not None else driver.vdd)
 
 
-def _open_drain_model(pin: Pin, vdd: float, r_pullup: float, notes: list) -> drv.Driver:
+def _open_drain_model(pin: Pin, vdd: float, r_pullup: float, notes: list,
+                      label: str = "") -> drv.Driver:
+    # the sink's switching time is not in the part format: the default ramp, said so
+    who = f"{label}: " if label else ""
+    notes.append(f"{who}fall: no edge points for an open-drain sink; t_ramp set to "
+                 f"{format_si(drv.DEFAULT_T_RAMP, 's')} (common practice, no source)")
     if pin.r_out is not None:
         r_fall = float(pin.r_out.at(vdd))
     elif pin.v_ol is not None and pin.i_ol is not None:

@@ -293,7 +293,7 @@ def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
                 stuck.append(d)
                 continue
             pullup[d.ref] = (rp, rail)
-            a.models[d.ref] = _open_drain_model(d.pin, d.vdd, rp, res.notes)
+            a.models[d.ref] = _open_drain_model(d.pin, d.vdd, rp, res.notes, d.label)
         else:
             a.models[d.ref] = _driver_model(d, res.notes)
     a.drivers = [d for d in a.drivers if d not in stuck]

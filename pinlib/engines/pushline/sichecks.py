@@ -127,14 +127,23 @@ def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
     corner's, where a driver has one)."""
     counts = {}
     by_driver: dict[str, int] = {}
+    # A Schmitt-trigger input that has switched at VIH switches back only below its
+    # falling threshold, which is at most VIH less its (minimum) hysteresis (and at
+    # least VIL): a re-crossing of VIH that stays above that level cannot switch it.
+    hyst = rx.level("hysteresis") or 0.0
+    back = {"rise": (max(v_ih - hyst, v_il), v_ih), "fall": (v_il, min(v_il + hyst, v_ih))}
     for ref, c in cases.items():
         if ref == rx.ref:
             continue
         for edge in ("rise", "fall"):
-            got = c.si_wave_at(rx.ref, edge).recrossings(v_il, v_ih)
+            wave = c.si_wave_at(rx.ref, edge)
+            got = wave.recrossings(v_il, v_ih)
+            entry = int(got.entry)
+            if hyst > 0:  # only a swing back past the falling (rising) threshold counts
+                entry = int(wave.recrossings(*back[edge]).opposite)
             prev = counts.get(edge, (0, 0))
-            counts[edge] = (max(prev[0], int(got.entry)), max(prev[1], int(got.opposite)))
-            by_driver[ref] = by_driver.get(ref, 0) + int(got.entry)
+            counts[edge] = (max(prev[0], entry), max(prev[1], int(got.opposite)))
+            by_driver[ref] = by_driver.get(ref, 0) + entry
     total = sum(e for e, _ in counts.values())
     # with several drivers (CIPO's peripherals) the one whose edges ring most: where the
     # series resistor goes
@@ -148,16 +157,25 @@ def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
     # on a clock it fails against the receiver's datasheet thresholds; elsewhere a rule
     source = (CLOCK_RINGING_SOURCE.format(v_il=rx.source("v_il"), v_ih=rx.source("v_ih"))
               if clock_line else _RINGING_SOURCE)
+    levels = f"VIL {_fmt(v_il, 'V')} / VIH {_fmt(v_ih, 'V')}"
+    if hyst > 0:
+        source += f"; hysteresis: {rx.source('hysteresis')}"
+        levels = (f"VIH {_fmt(v_ih, 'V')} down to {_fmt(back['rise'][0], 'V')} / VIL "
+                  f"{_fmt(v_il, 'V')} up to {_fmt(back['fall'][1], 'V')} (hysteresis "
+                  f"{_fmt(hyst, 'V')})")
+    details = {f"{edge}_{kind}": n for edge, (e, o) in counts.items()
+               for kind, n in (("recrossings", e), ("full_reversals", o))}
+    if hyst > 0:
+        details["hysteresis"] = hyst
     return Check(
         "ringing", status, total, 0, "", None, source,
-        (f"no re-crossing of VIL {_fmt(v_il, 'V')} / VIH {_fmt(v_ih, 'V')} at {rx.label}"
+        (f"no re-crossing of {levels} at {rx.label}"
          if total == 0 else
-         f"{total} re-crossing(s) of VIL {_fmt(v_il, 'V')} / VIH {_fmt(v_ih, 'V')} at "
+         f"{total} re-crossing(s) of {levels} at "
          f"{rx.label} after the first crossing"
          + (f" while {whose} drives" if whose else "") + f": risk of {what}") + corner,
         subject=rx.ref,
-        details={f"{edge}_{kind}": n for edge, (e, o) in counts.items()
-                 for kind, n in (("recrossings", e), ("full_reversals", o))},
+        details=details,
         fix=None if total == 0 else "add or increase a series resistor at the driver"
                                     + (f" ({whose})" if whose else ""))
 

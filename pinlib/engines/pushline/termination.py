@@ -96,16 +96,69 @@ def _auto_series(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
         notes.append(f"auto series resistor: none ({why})")
         return
     a.rs = chosen_series_resistor(a.z0, r_drv)
+    z0, why = a.z0, ""
     if a.rs > 0:
         a.unterminated = bare
         a.cases = _cases(a, a.rs, pullup)
-        notes.append(f"auto series resistor: {_fmt(a.rs, 'Ω')} (Z0 {_fmt(a.z0, 'Ω')} "
-                     f"- r_out {_fmt(r_drv, 'Ω')} = {_fmt(a.rs_ideal, 'Ω')}, "
-                     "nearest E24)")
+        z0, why = _best_match(a, r_drv, pullup)
+        a.rs_ideal = z0 - r_drv
+        notes.append(f"auto series resistor: {_fmt(a.rs, 'Ω')} (Z0 {_fmt(z0, 'Ω')} "
+                     f"- r_out {_fmt(r_drv, 'Ω')}{_corner_of(a, r_drv)} = "
+                     f"{_fmt(a.rs_ideal, 'Ω')}, nearest E24{why})")
     else:
         a.cases = _cases(a, 0.0, pullup) if bare is None else bare
         notes.append(f"auto series resistor: none (the driver's {_fmt(r_drv, 'Ω')} "
                      f"already matches or exceeds Z0 {_fmt(a.z0, 'Ω')})")
+
+
+def _corner_of(a: LineAnalysis, r_drv: float) -> str:
+    """`` at the fast corner`` when the resistance "auto" matched is a driver's fast
+    corner (``pins.<name>.fast``): the pin's own ``r_out`` then differs from it."""
+    for d in a.drivers:
+        m = a.models[d.ref]
+        if d.pin.drive != "open-drain" and m.fast is not None and \
+                0.5 * (m.fast.r_rise + m.fast.r_fall) == r_drv:
+            return f" of {d.label} at its fast corner"
+    return ""
+
+
+def _swing(cases: dict, receivers) -> float:
+    """The worst overshoot or undershoot of ``cases`` over every pin. [V]"""
+    f = _figures_of(cases, receivers)
+    return max(f["overshoot"], f["undershoot"])
+
+
+def _best_match(a: LineAnalysis, r_drv: float, pullup: dict) -> tuple[float, str]:
+    """On a line whose sections differ in impedance (a trace into a cable), the Z0 that
+    "auto" matches: of the resistors that match each section's Z0, the one that leaves
+    the least overshoot and undershoot (ties to the first section's, already in
+    ``a.cases``).  A short first section hides behind the next: the edge sees the
+    impedance of the longer line, and matching the first alone can leave the
+    reflection off the rest undamped.  Sets ``a.rs`` and ``a.cases`` to the choice and
+    returns its Z0 and words for the note (empty where the sections agree). [Ω]"""
+    seen = {a.z0: a.rs}
+    for s in a.stretches:
+        if s.td > 0 and math.isfinite(s.z0) and s.z0 not in seen:
+            seen[s.z0] = chosen_series_resistor(s.z0, r_drv)
+    tried = {a.rs: (a.z0, a.cases)}  # by resistor: two Z0 may round to one value
+    for z, rs in seen.items():
+        if rs > 0 and rs not in tried:
+            tried[rs] = (z, _cases(a, rs, pullup))
+    if len(tried) < 2:
+        return a.z0, ""
+    swings = {rs: _swing(cases, a.receivers) for rs, (_, cases) in tried.items()}
+    first = a.rs
+    best = min(swings, key=swings.get)
+    if swings[first] <= swings[best] + 1e-3:  # within a millivolt: the first's
+        return a.z0, ""
+    others = ", ".join(f"{_fmt(rs, 'Ω')} leaves {_fmt(swings[rs], 'V')}"
+                       for rs in tried if rs != best)
+    a.rs = best
+    z0, a.cases = tried[best]
+    label = next((s.label for s in a.stretches if s.td > 0 and s.z0 == z0), "")
+    where = f" of {label}" if label else ""
+    return z0, (f"; the sections differ in Z0: matching {_fmt(z0, 'Ω')}{where} leaves the "
+                f"least overshoot/undershoot, {_fmt(swings[best], 'V')} ({others})")
 
 
 def auto_ideal(a: LineAnalysis) -> tuple[float, float | None]:

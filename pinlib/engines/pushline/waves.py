@@ -387,14 +387,14 @@ def _unit_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float, c_f
                                            g.c_lumped_far).v
         if not caught and keeps(g, unit):
             return t, unit, True
-    for _ in range(_MAX_EXTENSIONS + 1):
+    for extension in range(_MAX_EXTENSIONS + 1):
         if g.distributed:
             unit = wf.distributed_response(g.t, 1.0, t_ramp, r_source, g.sections,
                                            g.c_lumped_far).v
         else:
             unit = wf.lumped_response(g.t, 1.0, t_ramp, r_source, g.c_total).v
         settled = is_settled(unit)
-        if settled:
+        if settled or extension == _MAX_EXTENSIONS:  # the last record: kept unsettled
             break
         g = edge_grid(stretches, r_source, t_ramp, c_far, distributed, 3.0 * g.t_end)
     return g.t, unit, bool(settled)
