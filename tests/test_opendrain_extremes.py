@@ -178,3 +178,70 @@ def test_a_pullup_inside_an_unbounded_window_passes_against_rp_min(tmp_path):
             assert c.limit == pytest.approx(966.7, abs=0.05)
             assert c.margin == pytest.approx(2e3 / 966.67 - 1, rel=1e-4)
             assert "at −0%" in c.message
+
+
+# --------------------------------------------------------------------- leakage of many pins
+
+_LEAKY = """format = "pinlib.part/1"
+id = "t-target-leaky"
+title = "Test target leaking 10 µA a pin (test data, invented)"
+category = "sensor"
+extends = "t-target"
+provenance = { basis = "estimate", source = "test data, invented" }
+
+[pins.sda]
+c_in = "2 pF"
+leakage = "10 µA"
+
+[pins.scl]
+c_in = "2 pF"
+leakage = "10 µA"
+"""
+
+
+def _leaky_bus(tmp_path, pullup: str, n: int = 30, mode: str = "standard",
+               protocol: str = "i2c"):
+    """t-ctrl-3v3 (1 µA a pin) and ``n`` targets leaking 10 µA a pin (test data, invented)
+    on a 3.3 V rail, tolerances 0."""
+    from test_opendrain import HEAD, PARTS
+
+    from pinlib.engines import opendrain
+    from pinlib.model.design import load_design
+
+    team = tmp_path / "team"
+    team.mkdir()
+    (team / "t-target-leaky.toml").write_text(_LEAKY, encoding="utf-8")
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }'] + [
+        f'{{ ref = "U{k + 2}", part = "t-target-leaky" }}' for k in range(n)]
+    path = tmp_path / "d.toml"
+    path.write_text(HEAD + one_bus(mode=mode, pullup=pullup, devices=devices,
+                                   protocol=protocol), encoding="utf-8")
+    d = load_design(path, library_folders=[PARTS, team])
+    return opendrain.evaluate_bus(d.buses[0], d)
+
+
+def test_auto_keeps_the_high_level_noise_margin_against_leakage(tmp_path):
+    # derived from UM10204 rev. 6 §7.4 and table 10 (VnH 0.2·VDD): the high level
+    # VDD − ΣI·Rp must stay 0.2·VDD above VIH 0.7·VDD, so Rp ≤ 0.1·VDD / ΣI =
+    # 0.33 V / 301 µA = 1096 Ω (30 pins of 10 µA and the controller's 1 µA, test
+    # data, invented); Rp(min) = (3.3 − 0.4)/3 mA = 966.7 Ω (eq. 2): of E24 only
+    # 1.0 kΩ lies between.  The rise time allows far more (eq. 1: 1 µs / (0.8473 ·
+    # 70 pF) = 16.9 kΩ), which the choice took alone before
+    res = _leaky_bus(tmp_path, "auto")
+    assert fig(res, "rp_max") == pytest.approx(16860, rel=1e-3)
+    assert fig(res, "pullup") == pytest.approx(1000.0)
+    for signal in ("SDA", "SCL"):
+        chk = next(c for c in res.checks
+                   if c.id == "noise-margin-high" and c.subject == signal)
+        # derived: 3.3 − 301 µA × 1 kΩ − 2.31 = 0.689 V against 0.66 V
+        assert chk.value == pytest.approx(0.689, abs=1e-6)
+        assert chk.status != "fail"
+
+
+def test_a_leakage_noise_margin_failure_names_the_largest_pullup(tmp_path):
+    # derived as above: the effective pull-up must be at most 1096 Ω (printed 1.1 kΩ)
+    res = _leaky_bus(tmp_path, "1.6 kΩ")
+    chk = next(c for c in res.checks if c.id == "noise-margin-high" and c.subject == "SDA")
+    assert chk.status == "fail"
+    assert chk.fix and "at most 1.1 kΩ" in chk.fix and chk.fix in chk.message
+    assert "leakage" in chk.fix

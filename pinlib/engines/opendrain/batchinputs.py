@@ -28,6 +28,7 @@ from pinlib.engines.opendrain.rules import (
     coupled_sinks,
     part_is_mosfet,
     pin_rules,
+    rp_leak_of,
     rp_max_of,
     rp_min_of,
     window_open,
@@ -357,6 +358,7 @@ class _Line:
     rp_min: Any
     rp_max: Any
     rise_factor: Any
+    rp_leak: Any = math.inf  # the leakage's bound at the high level (rules.rp_leak_of)
     pullup: Any = None     # the design resistor on this line
     r_eff: tuple | None = None  # (pullup, every pull-up in parallel) once worked out
 
@@ -484,8 +486,9 @@ def _line(bus, seg, signal, function, v, parts, scen, lim, board) -> _Line:
     rp_min = np.where(np.asarray(best) > 0, best, 1e-3)
     rise_factor = lim.rise_factor(v[:, :1])
     rp_max = rp_max_of(lim, rise_factor, cb)
+    rp_leak = rp_leak_of(v, lim.v_nh_rel or 0.0, leak, [r.v_ih for r in receivers])
     return _Line(signal, taps, cb, leak, drivers, receivers, r_parts, rp_min, rp_max,
-                 rise_factor)
+                 rise_factor, rp_leak)
 
 
 def _choose(s: _Seg) -> None:
