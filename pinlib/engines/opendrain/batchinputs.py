@@ -408,8 +408,8 @@ class _Parts:
     def part_of(self, dev: Device) -> Part | None:
         return None if dev.ref == self.ref else dev.part
 
-    def pins(self, dev: Device, function: str, vdd: float):
-        key = (dev.ref, dev.side, function, vdd)
+    def pins(self, dev: Device, function: str, vdd: float, vtol: float = 0.0):
+        key = (dev.ref, dev.side, function, vdd, vtol)
         if key in self._pins:
             return self._pins[key]
         parts = self.parts if dev.ref == self.ref else [dev.part]
@@ -418,9 +418,10 @@ class _Parts:
         if found[0] is None:
             self._pins[key] = None
             return None
-        if vdd not in self._defaults:
-            self._defaults[vdd] = (self.lim.default_sink(vdd), self.lim.default_levels())
-        d = self._defaults[vdd]
+        if (vdd, vtol) not in self._defaults:
+            self._defaults[vdd, vtol] = (self.lim.default_sink(vdd, vtol),
+                                         self.lim.default_levels())
+        d = self._defaults[vdd, vtol]
         out = self._pins[key] = _stack([_pin_data(pin, name, p, dev, self.lim, vdd, d)
                                         for (name, pin), p in zip(found, parts, strict=True)])
         return out
@@ -438,7 +439,7 @@ def _taps(seg: Segment, function: str, parts: _Parts, scen: Scenario) -> list[_T
     for d in seg.devices:
         own = d.supply is not None and not math.isclose(d.supply, seg.supply, rel_tol=1e-9)
         vdd = d.supply if own else seg.supply
-        pin = parts.pins(d, function, vdd)
+        pin = parts.pins(d, function, vdd, seg.supply_tolerance)
         if pin is None:
             continue
         part = parts.part_of(d)

@@ -326,7 +326,7 @@ def _drivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
     for t in taps:
         if not pin_rules(t.pin, t.dev.part, lim)[0]:
             continue
-        d_vol, d_iol, rule = lim.default_sink(t.vdd)
+        d_vol, d_iol, rule = lim.default_sink(t.vdd, vtol)
         vol_s = t.pin.v_ol if t.pin.v_ol is not None else d_vol
         iol_s = t.pin.i_ol if t.pin.i_ol is not None else d_iol
         if t.pin.v_ol is None or t.pin.i_ol is None:
