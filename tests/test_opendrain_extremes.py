@@ -209,11 +209,11 @@ def _leaky_bus(tmp_path, pullup: str, n: int = 30, mode: str = "standard",
     from pinlib.model.design import load_design
 
     team = tmp_path / "team"
-    team.mkdir()
+    team.mkdir(parents=True)
     (team / "t-target-leaky.toml").write_text(_LEAKY, encoding="utf-8")
     devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }'] + [
         f'{{ ref = "U{k + 2}", part = "t-target-leaky" }}' for k in range(n)]
-    path = tmp_path / "d.toml"
+    path = tmp_path / "d.toml"  # tmp_path exists: team was made inside it
     path.write_text(HEAD + one_bus(mode=mode, pullup=pullup, devices=devices,
                                    protocol=protocol), encoding="utf-8")
     d = load_design(path, library_folders=[PARTS, team])
@@ -245,3 +245,26 @@ def test_a_leakage_noise_margin_failure_names_the_largest_pullup(tmp_path):
     assert chk.status == "fail"
     assert chk.fix and "at most 1.1 kΩ" in chk.fix and chk.fix in chk.message
     assert "leakage" in chk.fix
+
+
+def test_smbus_bus_leakage_is_checked_against_ileak_bus(tmp_path):
+    # published: SMBus specification 3.1, table 4 (high-power DC): ILEAK-BUS ±200 µA a
+    # bus segment.  derived: t-ctrl-3v3's 1 µA and 25 targets of 10 µA (test data,
+    # invented) = 251 µA on each line, over the limit; 15 targets = 151 µA, under it
+    res = _leaky_bus(tmp_path, "1.5 kΩ", n=25, mode="100k", protocol="smbus")
+    chk = next(c for c in res.checks if c.id == "bus-leakage" and c.subject == "SDA")
+    assert chk.status == "fail"
+    assert chk.value == pytest.approx(251e-6, rel=1e-9)
+    assert chk.limit == pytest.approx(200e-6)
+    assert "table 4" in chk.source and "ILEAK-BUS" in chk.source
+    assert chk.fix and chk.fix in chk.message
+    res = _leaky_bus(tmp_path / "b", "1.5 kΩ", n=15, mode="100k", protocol="smbus")
+    chk = next(c for c in res.checks if c.id == "bus-leakage" and c.subject == "SCL")
+    assert chk.status == "pass" and chk.value == pytest.approx(151e-6, rel=1e-9)
+
+
+def test_i2c_has_no_bus_leakage_check(tmp_path):
+    # published: UM10204 rev. 6 table 9 limits each pin's input current (±10 µA), not a
+    # bus's sum: no bus-leakage check on I2C
+    res = _leaky_bus(tmp_path, "1 kΩ")
+    assert not any(c.id == "bus-leakage" for c in res.checks)

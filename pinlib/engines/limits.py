@@ -52,6 +52,9 @@ class OpenDrainLimits:
     f_min : float or None
         Lowest clock the document allows (SMBus's fSMB min); None where it gives none
         (I2C). [Hz]
+    leakage_bus : float or None
+        Most leakage a line of one bus segment may carry, all its pins together (SMBus's
+        ILEAK-BUS); None where the document limits pins only (I2C). [A]
     cb_max : float or None
         Capacitance limit per line [F]; None where the document gives none.
     t_low, t_high, t_su_dat, t_vd_dat : float
@@ -88,6 +91,8 @@ class OpenDrainLimits:
     source_noise: str
     source_f: str
     f_min: float | None = None
+    leakage_bus: float | None = None
+    source_leakage_bus: str = ""
     _i2c: i2c_std.I2cMode | None = None
     _smbus: smbus_std.SmbusClass | None = None
 
@@ -239,6 +244,8 @@ def limits_for(protocol: str, mode: str) -> OpenDrainLimits:
             source_pin=f"{smbus_std.SOURCE_HIGH_POWER} (CPIN, ILEAK-PIN)",
             source_noise="SMBus specification version 3.1 gives no noise-margin limits",
             source_f=f"{smbus_std.SOURCE_AC} (fSMB)", f_min=c.f_smb_min,
+            leakage_bus=c.leakage_bus,
+            source_leakage_bus=f"{smbus_std.SOURCE_HIGH_POWER} (ILEAK-BUS)",
             _smbus=c,
         )
     raise DesignError(M.NOT_OPEN_DRAIN_BUS, field="protocol", value=protocol,

@@ -121,6 +121,14 @@ def line(w: Words, ln: LineInputs) -> None:
                      f"{up} bus capacitance {_f(ln.cb, 'F')} (pins {_f(p['pins'], 'F')}, traces "
                      f"{_f(p['traces'], 'F')}, cables {_f(p['cables'], 'F')}, extra "
                      f"{_f(p['extra'], 'F')})", subject=up, details=dict(p)))
+    if lim.leakage_bus is not None:
+        chk = make(w.take("bus-leakage"), lim.source_leakage_bus,
+                   f"{up} leakage {_f(ln.leakage, 'A')}, every pin on the segment "
+                   f"together, against {_f(lim.leakage_bus, 'A')}", subject=up)
+        if chk.status == "fail":
+            _failed(chk, "fewer devices on this segment, parts that leak less, or a bus "
+                         "buffer splitting it")
+        grp.add(chk)
     grp.add(_window(w, ln, r_eff, rp_lo))
     defin = ("30–70 %" if lim.rise_definition == "30-70" else "SMBus points 0.65 V–1.50 V")
     bc = w.take("rise-time")
