@@ -268,3 +268,15 @@ def test_i2c_has_no_bus_leakage_check(tmp_path):
     # bus's sum: no bus-leakage check on I2C
     res = _leaky_bus(tmp_path, "1 kΩ")
     assert not any(c.id == "bus-leakage" for c in res.checks)
+
+
+def test_a_missing_sda_setup_margin_says_why(tmp_path):
+    # derived: only a controller on the bus, so no target drives SDA for a read and
+    # there is no data setup to budget: the figure has no number, and says why
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }']
+    res = bus_result(tmp_path, one_bus(devices=devices))
+    f = res.figures["sda_setup_margin"]
+    assert f.value is None and f.reason and "drives SDA" in f.reason
+    assert f.to_json()["reason"] == f.reason
+    lines = detail_lines(DesignResult("setup", buses=[res]), 80)
+    assert any("SDA setup margin" in ln and "drives SDA" in ln for ln in lines)
