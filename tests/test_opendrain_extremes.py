@@ -280,3 +280,31 @@ def test_a_missing_sda_setup_margin_says_why(tmp_path):
     assert f.to_json()["reason"] == f.reason
     lines = detail_lines(DesignResult("setup", buses=[res]), 80)
     assert any("SDA setup margin" in ln and "drives SDA" in ln for ln in lines)
+
+
+# --------------------------------------------------------------------- Cb at each limit
+
+
+@pytest.mark.parametrize("protocol,mode,cb_max_pf", [
+    ("i2c", "standard", 400),   # published: UM10204 rev. 6 table 10, Cb 400 pF
+    ("i2c", "fast", 400),       # published: UM10204 rev. 6 table 10, Cb 400 pF
+    ("i2c", "fast-plus", 550),  # published: UM10204 rev. 6 table 10, Cb 550 pF
+    ("smbus", "400k", 400),     # published: SMBus 3.1 table 4, CBUS 400 pF
+    ("smbus", "1m", 400),       # published: SMBus 3.1 table 4, CBUS 400 pF
+])
+def test_bus_capacitance_at_and_just_past_each_limit(tmp_path, protocol, mode, cb_max_pf):
+    # the two test pins carry 10 pF each (test data, invented); the rest is extra.
+    # At the limit the margin is 0: it passes, with the design's warning; 1 pF past
+    # it fails (a published limit)
+    at = bus_result(tmp_path, one_bus(protocol=protocol, mode=mode,
+                                      extra=f"{cb_max_pf - 20} pF"))
+    chk = next(c for c in at.checks if c.id == "bus-capacitance" and c.subject == "SDA")
+    assert chk.value == pytest.approx(cb_max_pf * 1e-12, rel=1e-12)
+    assert chk.status == "warn" and chk.margin == pytest.approx(0.0, abs=1e-12)
+    past = bus_result(tmp_path, one_bus(protocol=protocol, mode=mode,
+                                        extra=f"{cb_max_pf - 19} pF"))
+    chk = next(c for c in past.checks if c.id == "bus-capacitance" and c.subject == "SDA")
+    assert chk.status == "fail"
+    # derived: (Cb max − (Cb max + 1 pF)) / Cb max
+    assert chk.margin == pytest.approx(-1.0 / cb_max_pf, rel=1e-9)
+    assert ("table 10" if protocol == "i2c" else "table 4") in chk.source
