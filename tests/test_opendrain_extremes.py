@@ -308,3 +308,23 @@ def test_bus_capacitance_at_and_just_past_each_limit(tmp_path, protocol, mode, c
     # derived: (Cb max − (Cb max + 1 pF)) / Cb max
     assert chk.margin == pytest.approx(-1.0 / cb_max_pf, rel=1e-9)
     assert ("table 10" if protocol == "i2c" else "table 4") in chk.source
+
+
+# --------------------------------------------------------------------- SMBus sink classes
+
+
+@pytest.mark.parametrize("mode,rp_min", [
+    # derived from UM10204 rev. 6 eq. 2 with SMBus 3.1 table 4's high-power sink of each
+    # class, VOL 0.4 V at 4 / 6 / 20 mA, on a 3.3 V rail: (3.3 − 0.4)/IOL
+    ("100k", 725.0), ("400k", 483.3), ("1m", 145.0),
+])
+def test_smbus_default_sink_follows_its_class(tmp_path, mode, rp_min):
+    devices = ['{ ref = "U1", part = "t-target-bare", role = "controller" }',
+               '{ ref = "U2", part = "t-target-bare" }']
+    res = bus_result(tmp_path, one_bus(protocol="smbus", mode=mode, devices=devices))
+    assert fig(res, "rp_min") == pytest.approx(rp_min, abs=0.05)
+    # SMBus defines no noise margins (SMBus 3.1): no such checks, levels only
+    assert not any(c.id.startswith("noise-margin") for c in res.checks)
+    # the SMBus rise time runs between 0.65 V and 1.50 V: factor
+    # ln((3.3 − 0.65)/(3.3 − 1.5)) = 0.3868 (derived; docs/references.md [D])
+    assert fig(res, "rise_factor") == pytest.approx(0.3868, abs=5e-5)
