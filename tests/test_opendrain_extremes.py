@@ -328,3 +328,17 @@ def test_smbus_default_sink_follows_its_class(tmp_path, mode, rp_min):
     # the SMBus rise time runs between 0.65 V and 1.50 V: factor
     # ln((3.3 − 0.65)/(3.3 − 1.5)) = 0.3868 (derived; docs/references.md [D])
     assert fig(res, "rise_factor") == pytest.approx(0.3868, abs=5e-5)
+
+
+def test_auto_does_not_trade_the_sink_for_the_leakage(tmp_path):
+    # derived: 40 targets of 10 µA and the controller's 1 µA (test data, invented)
+    # allow Rp ≤ 0.33 V / 401 µA = 823 Ω, under Rp(min) 966.7 Ω (eq. 2): no value
+    # meets both, so the choice stays inside the sink's window (overloading a
+    # datasheet sink is no cure for a noise margin) and the noise margin says so
+    res = _leaky_bus(tmp_path, "auto", n=40)
+    assert fig(res, "pullup") >= 966.7
+    window = next(c for c in res.checks if c.id == "pullup-window" and c.subject == "SDA")
+    assert window.status != "fail"
+    nm = next(c for c in res.checks if c.id == "noise-margin-high" and c.subject == "SDA")
+    assert nm.status == "fail" and "no pull-up meets both" in nm.fix
+    assert "at most 823 Ω" in nm.fix

@@ -113,8 +113,9 @@ def auto_margins(series: str, lines, tol: float):
     the lines; the value with the largest score is chosen.  ``lines`` carry ``rp_min``,
     ``rp_max``, ``rp_leak`` and ``r_parts`` as floats (one bus) or ``(N, 1)`` columns (a
     batch).  The upper bound is the smaller of Rp(max) and ``rp_leak`` (the leakage's, see
-    :func:`rp_leak_of`): a value the high-level checks would fail is not chosen where one
-    that meets both exists.
+    :func:`rp_leak_of`) where a value meets that bound and Rp(min) together: a value the
+    high-level checks would fail is not chosen where one that meets both exists, and the
+    sink's window is never given up for it.
 
     Returns
     -------
@@ -126,8 +127,11 @@ def auto_margins(series: str, lines, tol: float):
     cand = eseries.values_in_range(series, 10.0, 10e6)[None, :]
     worst = np.full(cand.shape, np.inf)
     for ln in lines:
-        lo, hi = pu.pullup_margins(cand, ln.rp_min, np.minimum(ln.rp_max, ln.rp_leak), tol,
-                                   ln.r_parts)
+        # the leakage's bound only where a value meets it and Rp(min) together: else the
+        # choice stays in the sink's window (the noise margin then says none fits)
+        top = np.where(window_open(ln.rp_min, ln.rp_leak, tol),
+                       np.minimum(ln.rp_max, ln.rp_leak), ln.rp_max)
+        lo, hi = pu.pullup_margins(cand, ln.rp_min, top, tol, ln.r_parts)
         worst = np.minimum(worst, np.minimum(lo, hi))
     return cand, worst
 
