@@ -178,3 +178,167 @@ def test_a_pullup_inside_an_unbounded_window_passes_against_rp_min(tmp_path):
             assert c.limit == pytest.approx(966.7, abs=0.05)
             assert c.margin == pytest.approx(2e3 / 966.67 - 1, rel=1e-4)
             assert "at −0%" in c.message
+
+
+# --------------------------------------------------------------------- leakage of many pins
+
+_LEAKY = """format = "pinlib.part/1"
+id = "t-target-leaky"
+title = "Test target leaking 10 µA a pin (test data, invented)"
+category = "sensor"
+extends = "t-target"
+provenance = { basis = "estimate", source = "test data, invented" }
+
+[pins.sda]
+c_in = "2 pF"
+leakage = "10 µA"
+
+[pins.scl]
+c_in = "2 pF"
+leakage = "10 µA"
+"""
+
+
+def _leaky_bus(tmp_path, pullup: str, n: int = 30, mode: str = "standard",
+               protocol: str = "i2c"):
+    """t-ctrl-3v3 (1 µA a pin) and ``n`` targets leaking 10 µA a pin (test data, invented)
+    on a 3.3 V rail, tolerances 0."""
+    from test_opendrain import HEAD, PARTS
+
+    from pinlib.engines import opendrain
+    from pinlib.model.design import load_design
+
+    team = tmp_path / "team"
+    team.mkdir(parents=True)
+    (team / "t-target-leaky.toml").write_text(_LEAKY, encoding="utf-8")
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }'] + [
+        f'{{ ref = "U{k + 2}", part = "t-target-leaky" }}' for k in range(n)]
+    path = tmp_path / "d.toml"  # tmp_path exists: team was made inside it
+    path.write_text(HEAD + one_bus(mode=mode, pullup=pullup, devices=devices,
+                                   protocol=protocol), encoding="utf-8")
+    d = load_design(path, library_folders=[PARTS, team])
+    return opendrain.evaluate_bus(d.buses[0], d)
+
+
+def test_auto_keeps_the_high_level_noise_margin_against_leakage(tmp_path):
+    # derived from UM10204 rev. 6 §7.4 and table 10 (VnH 0.2·VDD): the high level
+    # VDD − ΣI·Rp must stay 0.2·VDD above VIH 0.7·VDD, so Rp ≤ 0.1·VDD / ΣI =
+    # 0.33 V / 301 µA = 1096 Ω (30 pins of 10 µA and the controller's 1 µA, test
+    # data, invented); Rp(min) = (3.3 − 0.4)/3 mA = 966.7 Ω (eq. 2): of E24 only
+    # 1.0 kΩ lies between.  The rise time allows far more (eq. 1: 1 µs / (0.8473 ·
+    # 70 pF) = 16.9 kΩ), which the choice took alone before
+    res = _leaky_bus(tmp_path, "auto")
+    assert fig(res, "rp_max") == pytest.approx(16860, rel=1e-3)
+    assert fig(res, "pullup") == pytest.approx(1000.0)
+    for signal in ("SDA", "SCL"):
+        chk = next(c for c in res.checks
+                   if c.id == "noise-margin-high" and c.subject == signal)
+        # derived: 3.3 − 301 µA × 1 kΩ − 2.31 = 0.689 V against 0.66 V
+        assert chk.value == pytest.approx(0.689, abs=1e-6)
+        assert chk.status != "fail"
+
+
+def test_a_leakage_noise_margin_failure_names_the_largest_pullup(tmp_path):
+    # derived as above: the effective pull-up must be at most 1096 Ω (printed 1.1 kΩ)
+    res = _leaky_bus(tmp_path, "1.6 kΩ")
+    chk = next(c for c in res.checks if c.id == "noise-margin-high" and c.subject == "SDA")
+    assert chk.status == "fail"
+    assert chk.fix and "at most 1.1 kΩ" in chk.fix and chk.fix in chk.message
+    assert "leakage" in chk.fix
+
+
+def test_smbus_bus_leakage_is_checked_against_ileak_bus(tmp_path):
+    # published: SMBus specification 3.1, table 4 (high-power DC): ILEAK-BUS ±200 µA a
+    # bus segment.  derived: t-ctrl-3v3's 1 µA and 25 targets of 10 µA (test data,
+    # invented) = 251 µA on each line, over the limit; 15 targets = 151 µA, under it
+    res = _leaky_bus(tmp_path, "1.5 kΩ", n=25, mode="100k", protocol="smbus")
+    chk = next(c for c in res.checks if c.id == "bus-leakage" and c.subject == "SDA")
+    assert chk.status == "fail"
+    assert chk.value == pytest.approx(251e-6, rel=1e-9)
+    assert chk.limit == pytest.approx(200e-6)
+    assert "table 4" in chk.source and "ILEAK-BUS" in chk.source
+    assert chk.fix and chk.fix in chk.message
+    res = _leaky_bus(tmp_path / "b", "1.5 kΩ", n=15, mode="100k", protocol="smbus")
+    chk = next(c for c in res.checks if c.id == "bus-leakage" and c.subject == "SCL")
+    assert chk.status == "pass" and chk.value == pytest.approx(151e-6, rel=1e-9)
+
+
+def test_i2c_has_no_bus_leakage_check(tmp_path):
+    # published: UM10204 rev. 6 table 9 limits each pin's input current (±10 µA), not a
+    # bus's sum: no bus-leakage check on I2C
+    res = _leaky_bus(tmp_path, "1 kΩ")
+    assert not any(c.id == "bus-leakage" for c in res.checks)
+
+
+def test_a_missing_sda_setup_margin_says_why(tmp_path):
+    # derived: only a controller on the bus, so no target drives SDA for a read and
+    # there is no data setup to budget: the figure has no number, and says why
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }']
+    res = bus_result(tmp_path, one_bus(devices=devices))
+    f = res.figures["sda_setup_margin"]
+    assert f.value is None and f.reason and "drives SDA" in f.reason
+    assert f.to_json()["reason"] == f.reason
+    lines = detail_lines(DesignResult("setup", buses=[res]), 80)
+    assert any("SDA setup margin" in ln and "drives SDA" in ln for ln in lines)
+
+
+# --------------------------------------------------------------------- Cb at each limit
+
+
+@pytest.mark.parametrize("protocol,mode,cb_max_pf", [
+    ("i2c", "standard", 400),   # published: UM10204 rev. 6 table 10, Cb 400 pF
+    ("i2c", "fast", 400),       # published: UM10204 rev. 6 table 10, Cb 400 pF
+    ("i2c", "fast-plus", 550),  # published: UM10204 rev. 6 table 10, Cb 550 pF
+    ("smbus", "400k", 400),     # published: SMBus 3.1 table 4, CBUS 400 pF
+    ("smbus", "1m", 400),       # published: SMBus 3.1 table 4, CBUS 400 pF
+])
+def test_bus_capacitance_at_and_just_past_each_limit(tmp_path, protocol, mode, cb_max_pf):
+    # the two test pins carry 10 pF each (test data, invented); the rest is extra.
+    # At the limit the margin is 0: it passes, with the design's warning; 1 pF past
+    # it fails (a published limit)
+    at = bus_result(tmp_path, one_bus(protocol=protocol, mode=mode,
+                                      extra=f"{cb_max_pf - 20} pF"))
+    chk = next(c for c in at.checks if c.id == "bus-capacitance" and c.subject == "SDA")
+    assert chk.value == pytest.approx(cb_max_pf * 1e-12, rel=1e-12)
+    assert chk.status == "warn" and chk.margin == pytest.approx(0.0, abs=1e-12)
+    past = bus_result(tmp_path, one_bus(protocol=protocol, mode=mode,
+                                        extra=f"{cb_max_pf - 19} pF"))
+    chk = next(c for c in past.checks if c.id == "bus-capacitance" and c.subject == "SDA")
+    assert chk.status == "fail"
+    # derived: (Cb max − (Cb max + 1 pF)) / Cb max
+    assert chk.margin == pytest.approx(-1.0 / cb_max_pf, rel=1e-9)
+    assert ("table 10" if protocol == "i2c" else "table 4") in chk.source
+
+
+# --------------------------------------------------------------------- SMBus sink classes
+
+
+@pytest.mark.parametrize("mode,rp_min", [
+    # derived from UM10204 rev. 6 eq. 2 with SMBus 3.1 table 4's high-power sink of each
+    # class, VOL 0.4 V at 4 / 6 / 20 mA, on a 3.3 V rail: (3.3 − 0.4)/IOL
+    ("100k", 725.0), ("400k", 483.3), ("1m", 145.0),
+])
+def test_smbus_default_sink_follows_its_class(tmp_path, mode, rp_min):
+    devices = ['{ ref = "U1", part = "t-target-bare", role = "controller" }',
+               '{ ref = "U2", part = "t-target-bare" }']
+    res = bus_result(tmp_path, one_bus(protocol="smbus", mode=mode, devices=devices))
+    assert fig(res, "rp_min") == pytest.approx(rp_min, abs=0.05)
+    # SMBus defines no noise margins (SMBus 3.1): no such checks, levels only
+    assert not any(c.id.startswith("noise-margin") for c in res.checks)
+    # the SMBus rise time runs between 0.65 V and 1.50 V: factor
+    # ln((3.3 − 0.65)/(3.3 − 1.5)) = 0.3868 (derived; docs/references.md [D])
+    assert fig(res, "rise_factor") == pytest.approx(0.3868, abs=5e-5)
+
+
+def test_auto_does_not_trade_the_sink_for_the_leakage(tmp_path):
+    # derived: 40 targets of 10 µA and the controller's 1 µA (test data, invented)
+    # allow Rp ≤ 0.33 V / 401 µA = 823 Ω, under Rp(min) 966.7 Ω (eq. 2): no value
+    # meets both, so the choice stays inside the sink's window (overloading a
+    # datasheet sink is no cure for a noise margin) and the noise margin says so
+    res = _leaky_bus(tmp_path, "auto", n=40)
+    assert fig(res, "pullup") >= 966.7
+    window = next(c for c in res.checks if c.id == "pullup-window" and c.subject == "SDA")
+    assert window.status != "fail"
+    nm = next(c for c in res.checks if c.id == "noise-margin-high" and c.subject == "SDA")
+    assert nm.status == "fail" and "no pull-up meets both" in nm.fix
+    assert "at most 823 Ω" in nm.fix

@@ -52,6 +52,9 @@ class OpenDrainLimits:
     f_min : float or None
         Lowest clock the document allows (SMBus's fSMB min); None where it gives none
         (I2C). [Hz]
+    leakage_bus : float or None
+        Most leakage a line of one bus segment may carry, all its pins together (SMBus's
+        ILEAK-BUS); None where the document limits pins only (I2C). [A]
     cb_max : float or None
         Capacitance limit per line [F]; None where the document gives none.
     t_low, t_high, t_su_dat, t_vd_dat : float
@@ -88,6 +91,8 @@ class OpenDrainLimits:
     source_noise: str
     source_f: str
     f_min: float | None = None
+    leakage_bus: float | None = None
+    source_leakage_bus: str = ""
     _i2c: i2c_std.I2cMode | None = None
     _smbus: smbus_std.SmbusClass | None = None
 
@@ -161,8 +166,11 @@ class OpenDrainLimits:
                 Sourced(Threshold(0.0, c.v_ih_min, f"{c.v_ih_min:g} V"), "V", basis="generic",
                         source=self.source_levels))
 
-    def default_sink(self, vdd: float) -> tuple[Sourced, Sourced, str]:
-        """(VOL, IOL, which rule) a driver without its own sink point is taken at."""
+    def default_sink(self, vdd: float, vtol: float = 0.0) -> tuple[Sourced, Sourced, str]:
+        """(VOL, IOL, which rule) a driver without its own sink point is taken at, on a
+        rail ``vdd`` ± ``vtol``.  I2C's VOL2 (VDD <= 2 V) is taken wherever the rail's
+        minimum reaches 2 V: the output guarantees no more there, and the rule is one
+        for both corners (above 2 V it asks more than VOL1 would, never less)."""
         if self._smbus is not None:
             c = self._smbus
             return (Sourced(Threshold(0.0, c.v_ol, f"{c.v_ol:g} V"), "V", basis="generic",
@@ -170,11 +178,13 @@ class OpenDrainLimits:
                     Sourced(c.i_ol, "A", basis="generic", source=self.source_sink),
                     f"VOL {c.v_ol:g} V at {c.i_ol * 1e3:g} mA")
         m = self._i2c
-        if vdd <= i2c_std.VDD_LOW_SINK and m.v_ol_low_vdd_rel is not None:
+        if vdd * (1.0 - vtol) <= i2c_std.VDD_LOW_SINK and m.v_ol_low_vdd_rel is not None:
             return (Sourced(Threshold(m.v_ol_low_vdd_rel, 0.0, f"{m.v_ol_low_vdd_rel:g} VDD"),
                             "V", basis="generic", source=self.source_sink),
                     Sourced(m.i_ol_low_vdd, "A", basis="generic", source=self.source_sink),
-                    f"VOL2 {m.v_ol_low_vdd_rel:g}·VDD at {m.i_ol_low_vdd * 1e3:g} mA")
+                    f"VOL2 {m.v_ol_low_vdd_rel:g}·VDD at {m.i_ol_low_vdd * 1e3:g} mA"
+                    + ("" if vdd <= i2c_std.VDD_LOW_SINK else
+                       f", the rail reaching {i2c_std.VDD_LOW_SINK:g} V at its minimum"))
         return (Sourced(Threshold(0.0, m.v_ol, f"{m.v_ol:g} V"), "V", basis="generic",
                         source=self.source_sink),
                 Sourced(m.i_ol, "A", basis="generic", source=self.source_sink),
@@ -234,6 +244,8 @@ def limits_for(protocol: str, mode: str) -> OpenDrainLimits:
             source_pin=f"{smbus_std.SOURCE_HIGH_POWER} (CPIN, ILEAK-PIN)",
             source_noise="SMBus specification version 3.1 gives no noise-margin limits",
             source_f=f"{smbus_std.SOURCE_AC} (fSMB)", f_min=c.f_smb_min,
+            leakage_bus=c.leakage_bus,
+            source_leakage_bus=f"{smbus_std.SOURCE_HIGH_POWER} (ILEAK-BUS)",
             _smbus=c,
         )
     raise DesignError(M.NOT_OPEN_DRAIN_BUS, field="protocol", value=protocol,

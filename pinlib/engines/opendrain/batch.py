@@ -125,6 +125,8 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
                            "noise_margin_high": None, "pullup_power": None}
     if lim.cb_max is not None:
         out.pick("bus-capacitance", up, [le(ln.cb, lim.cb_max)], warn, "F")
+    if lim.leakage_bus is not None:
+        out.pick("bus-leakage", up, [le(ln.leakage, lim.leakage_bus)], warn, "A")
     far = _far(s, ctx.segs, ctx.links[s.index], ln.signal)
     phys = unchecked if _in_domain(ctx, ln, v, rp_lo, rp_hi, far) else pu
     # the end nearer its bound, by pullup.pullup_margins' two ratios (its inputs are

@@ -28,6 +28,7 @@ from pinlib.engines.opendrain.rules import (
     coupled_sinks,
     part_is_mosfet,
     pin_rules,
+    rp_leak_of,
     rp_max_of,
     rp_min_of,
     window_open,
@@ -357,6 +358,7 @@ class _Line:
     rp_min: Any
     rp_max: Any
     rise_factor: Any
+    rp_leak: Any = math.inf  # the leakage's bound at the high level (rules.rp_leak_of)
     pullup: Any = None     # the design resistor on this line
     r_eff: tuple | None = None  # (pullup, every pull-up in parallel) once worked out
 
@@ -406,8 +408,8 @@ class _Parts:
     def part_of(self, dev: Device) -> Part | None:
         return None if dev.ref == self.ref else dev.part
 
-    def pins(self, dev: Device, function: str, vdd: float):
-        key = (dev.ref, dev.side, function, vdd)
+    def pins(self, dev: Device, function: str, vdd: float, vtol: float = 0.0):
+        key = (dev.ref, dev.side, function, vdd, vtol)
         if key in self._pins:
             return self._pins[key]
         parts = self.parts if dev.ref == self.ref else [dev.part]
@@ -416,9 +418,10 @@ class _Parts:
         if found[0] is None:
             self._pins[key] = None
             return None
-        if vdd not in self._defaults:
-            self._defaults[vdd] = (self.lim.default_sink(vdd), self.lim.default_levels())
-        d = self._defaults[vdd]
+        if (vdd, vtol) not in self._defaults:
+            self._defaults[vdd, vtol] = (self.lim.default_sink(vdd, vtol),
+                                         self.lim.default_levels())
+        d = self._defaults[vdd, vtol]
         out = self._pins[key] = _stack([_pin_data(pin, name, p, dev, self.lim, vdd, d)
                                         for (name, pin), p in zip(found, parts, strict=True)])
         return out
@@ -436,7 +439,7 @@ def _taps(seg: Segment, function: str, parts: _Parts, scen: Scenario) -> list[_T
     for d in seg.devices:
         own = d.supply is not None and not math.isclose(d.supply, seg.supply, rel_tol=1e-9)
         vdd = d.supply if own else seg.supply
-        pin = parts.pins(d, function, vdd)
+        pin = parts.pins(d, function, vdd, seg.supply_tolerance)
         if pin is None:
             continue
         part = parts.part_of(d)
@@ -484,8 +487,9 @@ def _line(bus, seg, signal, function, v, parts, scen, lim, board) -> _Line:
     rp_min = np.where(np.asarray(best) > 0, best, 1e-3)
     rise_factor = lim.rise_factor(v[:, :1])
     rp_max = rp_max_of(lim, rise_factor, cb)
+    rp_leak = rp_leak_of(v, lim.v_nh_rel or 0.0, leak, [r.v_ih for r in receivers])
     return _Line(signal, taps, cb, leak, drivers, receivers, r_parts, rp_min, rp_max,
-                 rise_factor)
+                 rise_factor, rp_leak)
 
 
 def _choose(s: _Seg) -> None:

@@ -244,13 +244,21 @@ def _cells(x) -> list:
     return np.asarray(x, dtype=float).reshape(-1).tolist()
 
 
+#: A worked-out margin nearer to 0 than this is 0: the value is at its limit.  A sum
+#: written to land on a limit (10 pF + 10 pF + 530 pF against Cb 550 pF) comes out a
+#: unit in the last place beyond it, which read as a failure at "-0 %". [1]
+AT_LIMIT = 1e-12
+
+
 def _margins(buf):
     """The margins of stacked rows (:func:`pinlib.model.result.max_margin` where the
-    sense is 1, ``min_margin`` where it is −1, the given margin where 0). [1]"""
+    sense is 1, ``min_margin`` where it is −1, the given margin where 0); one within
+    :data:`AT_LIMIT` of 0 is 0. [1]"""
     value, limit, sense, known = buf
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
         excess = np.where(sense > 0, limit - value, value - limit)
         m = excess / np.abs(limit)
+    m = np.where(np.abs(m) <= AT_LIMIT, 0.0, m)
     zero = limit == 0
     if zero.any():  # a zero limit: met (+inf) or not (−inf)
         m = np.where(zero, np.where(excess >= 0, math.inf, -math.inf), m)
@@ -269,7 +277,8 @@ def _margin(value: float, limit: float, sense: float, given: float) -> float:
     excess = limit - value if sense > 0 else value - limit
     if limit == 0:  # met (+inf) or not (−inf); NaN is not met
         return math.inf if excess >= 0 else -math.inf
-    return excess / abs(limit)
+    m = excess / abs(limit)
+    return 0.0 if abs(m) <= AT_LIMIT else m
 
 
 def _finish_one(pending, rows) -> None:

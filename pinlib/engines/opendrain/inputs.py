@@ -31,6 +31,7 @@ from pinlib.engines.opendrain.rules import (
     links,
     part_is_mosfet,
     pin_rules,
+    rp_leak_of,
     rp_max_of,
     rp_min_of,
     window_open,
@@ -158,6 +159,10 @@ class LineInputs:
     #: Rp(min) from this segment's own drivers alone (before the current across pass
     #: transistors), its weakest sink and label; set where the segment is coupled. [Ω]
     own: tuple | None = None
+    #: The largest effective pull-up the leakage allows at the high level (with its
+    #: noise margin), :func:`.rules.rp_leak_of`; ``inf`` for none.  The ``auto`` choice
+    #: keeps below it; it is not part of the window (Rp(max) is eq. 1's). [Ω]
+    rp_leak: float = math.inf
 
 
 @value_class
@@ -321,7 +326,7 @@ def _drivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
     for t in taps:
         if not pin_rules(t.pin, t.dev.part, lim)[0]:
             continue
-        d_vol, d_iol, rule = lim.default_sink(t.vdd)
+        d_vol, d_iol, rule = lim.default_sink(t.vdd, vtol)
         vol_s = t.pin.v_ol if t.pin.v_ol is not None else d_vol
         iol_s = t.pin.i_ol if t.pin.i_ol is not None else d_iol
         if t.pin.v_ol is None or t.pin.i_ol is None:
@@ -405,9 +410,10 @@ def _line_inputs(signal: str, seg_in: SegmentInputs, lim: OpenDrainLimits,
     rp_min, weakest = _weakest_sink(drivers, float(v[1]))
     rise_factor = float(lim.rise_factor(float(v[0])))
     rp_max = rp_max_of(lim, rise_factor, cb)
+    rp_leak = rp_leak_of(v, lim.v_nh_rel or 0.0, leak, [r.v_ih for r in receivers])
     return LineInputs(signal, taps, cb, cb_parts, leak, drivers, receivers, part_pullups,
                       r_parts, rp_min, weakest, rp_max, rise_factor,
-                      weakest.tap.label if weakest else "")
+                      weakest.tap.label if weakest else "", rp_leak=rp_leak)
 
 
 def _choose(seg_in: SegmentInputs) -> None:

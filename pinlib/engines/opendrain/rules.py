@@ -86,11 +86,36 @@ def rp_max_of(lim: OpenDrainLimits, rise_factor, cb):
     return np.where(ok, rc.rp_max(lim.tr_max, np.where(ok, cb_arr, 1.0), rise_factor), math.inf)
 
 
+def rp_leak_of(v, v_nh_rel, leakage, v_ihs):
+    """The largest effective pull-up (at its + tolerance) whose leakage drop keeps the
+    high level at or above every receiver's VIH plus the high-level noise margin:
+    ``(VDD·(1 − VnH) − VIH,max) / ΣI`` at the rail corner where that is least (UM10204
+    rev. 6 §7.4 with table 10's VnH; ``v_nh_rel`` 0 where the document sets no margin,
+    SMBus).  ``inf`` where nothing leaks, nothing reads the line, or the bound is not
+    positive (the rail itself is too low: no pull-up helps, the level checks say so).
+    ``v`` and each of ``v_ihs`` at the rail corners (``(2,)``, or batch columns). [Ω]"""
+    if not v_ihs:
+        return math.inf
+    vih = v_ihs[0]
+    for x in v_ihs[1:]:
+        vih = np.maximum(vih, x)
+    room = np.min(np.asarray(v, dtype=float) * (1.0 - v_nh_rel) - vih, axis=-1,
+                  keepdims=np.ndim(v) > 1)
+    leak = np.asarray(leakage, dtype=float)
+    ok = (leak > 0) & (room > 0)
+    bound = np.where(ok, room / np.where(ok, leak, 1.0), math.inf)
+    return float(bound) if np.ndim(bound) == 0 else bound
+
+
 def auto_margins(series: str, lines, tol: float):
     """The ``auto`` rule's score of every value of a series (10 Ω to 10 MΩ): the smaller
     of the two tolerance-adjusted relative margins to Rp(min) and Rp(max), the worst over
     the lines; the value with the largest score is chosen.  ``lines`` carry ``rp_min``,
-    ``rp_max`` and ``r_parts`` as floats (one bus) or ``(N, 1)`` columns (a batch).
+    ``rp_max``, ``rp_leak`` and ``r_parts`` as floats (one bus) or ``(N, 1)`` columns (a
+    batch).  The upper bound is the smaller of Rp(max) and ``rp_leak`` (the leakage's, see
+    :func:`rp_leak_of`) where a value meets that bound and Rp(min) together: a value the
+    high-level checks would fail is not chosen where one that meets both exists, and the
+    sink's window is never given up for it.
 
     Returns
     -------
@@ -102,7 +127,11 @@ def auto_margins(series: str, lines, tol: float):
     cand = eseries.values_in_range(series, 10.0, 10e6)[None, :]
     worst = np.full(cand.shape, np.inf)
     for ln in lines:
-        lo, hi = pu.pullup_margins(cand, ln.rp_min, ln.rp_max, tol, ln.r_parts)
+        # the leakage's bound only where a value meets it and Rp(min) together: else the
+        # choice stays in the sink's window (the noise margin then says none fits)
+        top = np.where(window_open(ln.rp_min, ln.rp_leak, tol),
+                       np.minimum(ln.rp_max, ln.rp_leak), ln.rp_max)
+        lo, hi = pu.pullup_margins(cand, ln.rp_min, top, tol, ln.r_parts)
         worst = np.minimum(worst, np.minimum(lo, hi))
     return cand, worst
 

@@ -121,6 +121,14 @@ def line(w: Words, ln: LineInputs) -> None:
                      f"{up} bus capacitance {_f(ln.cb, 'F')} (pins {_f(p['pins'], 'F')}, traces "
                      f"{_f(p['traces'], 'F')}, cables {_f(p['cables'], 'F')}, extra "
                      f"{_f(p['extra'], 'F')})", subject=up, details=dict(p)))
+    if lim.leakage_bus is not None:
+        chk = make(w.take("bus-leakage"), lim.source_leakage_bus,
+                   f"{up} leakage {_f(ln.leakage, 'A')}, every pin on the segment "
+                   f"together, against {_f(lim.leakage_bus, 'A')}", subject=up)
+        if chk.status == "fail":
+            _failed(chk, "fewer devices on this segment, parts that leak less, or a bus "
+                         "buffer splitting it")
+        grp.add(chk)
     grp.add(_window(w, ln, r_eff, rp_lo))
     defin = ("30–70 %" if lim.rise_definition == "30-70" else "SMBus points 0.65 V–1.50 V")
     bc = w.take("rise-time")
@@ -209,16 +217,44 @@ def _v_ol(w: Words, ln: LineInputs, far: list) -> None:
 
 
 
-def _noise_margin(w: Words, up: str, side: str, basis: str, rel: float) -> None:
-    """The line's low- or high-level noise margin, when the batch made one for it."""
+def _noise_margin(w: Words, up: str, side: str, basis: str, rel: float,
+                  ln: LineInputs | None = None, rp_hi: float = math.nan) -> None:
+    """The line's low- or high-level noise margin, when the batch made one for it; a
+    failing high-level margin of a leaking line (``ln``, its pull-up ``rp_hi`` at + its
+    tolerance) names the largest pull-up that meets it."""
     nm = w.peek(f"noise-margin-{side}")
     if nm is None or nm.signal != up:
         return
     w.take(f"noise-margin-{side}")
     _, c = row_corner(nm)
-    w.grp.add(make(nm, w.lim.source_noise,
-                   f"{up} {side}-level noise margin {_f(nm.value[0], 'V')} ({basis}, "
-                   f"{_CORNERS[c]}) against {rel:g}·VDD", subject=up))
+    chk = make(nm, w.lim.source_noise,
+               f"{up} {side}-level noise margin {_f(nm.value[0], 'V')} ({basis}, "
+               f"{_CORNERS[c]}) against {rel:g}·VDD", subject=up)
+    if chk.status == "fail" and ln is not None:
+        fix = _leakage_fix(w, ln, rp_hi, float(nm.value[0]) - float(nm.limit[0]))
+        if fix:
+            _failed(chk, fix)
+    w.grp.add(chk)
+
+
+def _leakage_fix(w: Words, ln: LineInputs, rp_hi: float, short: float) -> str:
+    """What a high level ``short`` volts under its limit needs of the pull-up: the
+    largest effective pull-up (nominal) whose leakage drop meets it, ``Rp·(1 + tol) ≤
+    rp_hi + short / ΣI``; and where that is under Rp(min), that no pull-up can.  Empty
+    where nothing leaks or even no drop at all would meet it (the rail is too low)."""
+    tol = w.seg_in.tol
+    if not ln.leakage > 0:
+        return ""
+    r_ok = rp_hi + short / ln.leakage
+    if not r_ok > 0:
+        return ""
+    top = r_ok / (1 + tol)
+    text = (f"an effective pull-up of at most {_f(top, 'Ω')} (at +{tol:.0%}: the leakage "
+            f"{_f(ln.leakage, 'A')} drops the high level by ΣI·Rp)")
+    if math.isfinite(ln.rp_min) and top < ln.rp_min / (1 - tol):
+        text += (f", below Rp(min) {_f(ln.rp_min / (1 - tol), 'Ω')}: no pull-up meets both; "
+                 "fewer or less leaky devices on the line, or a bus buffer splitting it")
+    return text
 
 def _conditional_on_r_on(w: Words, far: list, chk: Check) -> None:
     """A low level computed through a pass transistor whose on-resistance is not assured
@@ -276,11 +312,12 @@ def _v_oh(w: Words, ln: LineInputs, rp_hi: float) -> None:
                f"{_f(bc.limit[0], 'V')} of {r.tap.label}", subject=f"{up} {r.tap.label}",
                details={"receivers": {ln.receivers[j].tap.label: m for m, j in rows}})
     if failing:
+        fix = _leakage_fix(w, ln, rp_hi, float(bc.value[0]) - float(bc.limit[0]))
         _failed(chk, f"{', '.join(failing)} cannot read the pull-up rail as high: pull up to "
                      "a rail they accept, put a level translator between, or lower the pull-up "
-                     "(leakage drop)")
+                     f"(leakage drop){': ' + fix if fix else ''}")
     w.grp.add(chk)
-    _noise_margin(w, up, "high", "high level − highest VIH", lim.v_nh_rel)
+    _noise_margin(w, up, "high", "high level − highest VIH", lim.v_nh_rel, ln, rp_hi)
 
 
 def _fall(w: Words, ln: LineInputs, far: list) -> None:

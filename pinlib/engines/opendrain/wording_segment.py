@@ -77,6 +77,8 @@ RP_MAX_UNBOUNDED = "no upper bound (Cb is 0)"
 #: this segment's pull-up draws anything (the pull-ups across a pass-transistor
 #: translator alone take it), so no resistor is large enough; pullup-window says more.
 RP_MIN_NONE = "none: no pull-up is large enough for the weakest sink (see Pull-up window)"
+#: Why the SDA setup margin is none where no device gives the segment data to read.
+SETUP_NONE = "none: no target drives SDA, so no read's data setup to budget"
 #: Why a fall time (and the clock worked out from it) is none where it is infinite.
 FALL_NONE = "none: the line never falls to VIL (see Fall time)"
 
@@ -142,6 +144,9 @@ def _timing(w: Words, sb) -> None:
                      f"rated {_f(bc.limit[0], 'Hz')}", subject=d.ref))
     bc = w.peek("setup-time")
     if bc is None:
+        f = grp.figures.get("sda_setup_margin")
+        if f is not None and f.value is None:
+            grp.figure("sda_setup_margin", None, f.unit, SETUP_NONE)
         return
     w.take("setup-time")
     devices = ctx.devices
