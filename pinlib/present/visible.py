@@ -6,7 +6,7 @@ sequence clears the screen, moves the cursor, retitles the window or hides text;
 carriage return overwrites the line; a right-to-left override reverses what follows
 (a FAIL may read LIAF, or a number its digits backwards).  The command line writes its
 standard output and standard error through :class:`VisibleStream`, which shows each
-such character as its escape (``\\x1b``, ``\\r``, ``\\u202e``) and lets through only the
+such character as its escape (``\\x1b``, ``\\x0d``, ``\\u202e``) and lets through only the
 line breaks and tabs, and the colour codes pinlib itself writes around a status word
 (:data:`STATUS_SGR`).  Standard error also keeps carriage returns: a progress bar
 redraws its line with them.  What pinlib stores is untouched: a title is written back to
@@ -63,11 +63,6 @@ class VisibleStream:
     def writelines(self, lines) -> None:
         for line in lines:
             self.write(line)
-
-    @property
-    def wrapped(self):
-        """The stream written to."""
-        return self._stream
 
     def __getattr__(self, name):
         return getattr(self._stream, name)
