@@ -444,22 +444,25 @@ def _paired_checks(old_c: dict, new_c: dict) -> list[tuple[dict | None, dict | N
     return pairs
 
 
-#: The SPI pin (by function) each timing value concerns, by the device's role: a
+#: The SPI signal whose pin each timing value concerns, by the device's role: a
 #: peripheral's output times are its CIPO's, its setup and hold its COPI's; a
 #: controller's the other way round.
-_TIMING_FUNCTION = {
-    "peripheral": {"timing.t_valid": "spi-cipo", "timing.t_cs_valid": "spi-cipo",
-                   "timing.t_setup": "spi-copi", "timing.t_hold": "spi-copi",
-                   "timing.t_cs_setup": "spi-cs", "timing.t_cs_hold": "spi-cs"},
-    "controller": {"timing.t_valid": "spi-copi", "timing.t_setup": "spi-cipo",
-                   "timing.t_hold": "spi-cipo"},
+_TIMING_SIGNAL = {
+    "peripheral": {"timing.t_valid": "cipo", "timing.t_cs_valid": "cipo",
+                   "timing.t_setup": "copi", "timing.t_hold": "copi",
+                   "timing.t_cs_setup": "cs", "timing.t_cs_hold": "cs"},
+    "controller": {"timing.t_valid": "copi", "timing.t_setup": "cipo",
+                   "timing.t_hold": "cipo"},
 }
 
 
 def _timing_pins(entry: dict) -> dict[str, str]:
     """The pin each SPI timing value of a snapshot's device concerns, by the value's key
-    (:data:`_TIMING_FUNCTION`; the pin found by its function), for a part whose pin of
-    that function is one pin."""
+    (:data:`_TIMING_SIGNAL`; the pin found by the signal's function), for a part whose
+    pin of that function is one pin."""
+    from pinlib.core.protocols import protocol
+
+    spi = protocol("spi")
     values = entry.get("values", {})
     by_function: dict[str, list] = {}
     for key, v in values.items():
@@ -467,8 +470,8 @@ def _timing_pins(entry: dict) -> dict[str, str]:
         if len(parts) == 3 and parts[0] == "pins" and parts[2] == "function":
             by_function.setdefault(v.get("value"), []).append(parts[1])
     out = {}
-    for key, fn in _TIMING_FUNCTION.get(entry.get("role"), {}).items():
-        pins = by_function.get(fn, [])
+    for key, signal in _TIMING_SIGNAL.get(entry.get("role"), {}).items():
+        pins = by_function.get(spi.function(signal), [])
         if len(pins) == 1:
             out[key] = pins[0]
     return out
