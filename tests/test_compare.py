@@ -1048,3 +1048,18 @@ def test_values_of_a_pin_no_bus_connects_are_counted_not_listed():
             entry.pop("unconnected", None)
     lines = next(p for p in compare(old, new).part_changes if p.ref == "U12").lines()
     assert any(ln.strip().startswith("U12 CIPO r_out") for ln in lines)
+
+
+@pytest.mark.parametrize("key, bad", [("unconnected", 5), ("unconnected", [["cipo"]]),
+                                      ("role", ["peripheral"])])
+def test_a_damaged_list_of_unconnected_pins_is_named(board, key, bad):
+    # The change list reads a device's unconnected pins and its role: a damaged one
+    # ended in a TypeError (int is not iterable, unhashable list) instead of naming it.
+    design = load_design(board)
+    save_snapshot(design, check_design(design))
+    doc = json.loads(snapshot_path(board).read_text(encoding="utf-8"))
+    ref = next(iter(doc["parts"]))
+    doc["parts"][ref][key] = bad
+    snapshot_path(board).write_text(json.dumps(doc), encoding="utf-8")
+    with pytest.raises(InputError, match=f"parts.{ref}.{key}"):
+        compare_with_snapshot(design, check_design(design))

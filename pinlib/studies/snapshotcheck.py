@@ -133,10 +133,12 @@ def _check_parts(c: _Check, data: dict) -> None:
         where = f"parts.{ref}"
         if not isinstance(dev, dict):
             c.fail(where, dev, _OBJECT)
-        for key in ("part", "file"):
+        for key in ("part", "file", "role"):
             c.kind(dev, key, where, _is_scalar, _SCALAR)
         c.kind(dev, "buses", where, lambda v: isinstance(v, list) and all(map(_is_text, v)),
                "a list of bus ids")
+        c.kind(dev, "unconnected", where,
+               lambda v: isinstance(v, list) and all(map(_is_text, v)), "a list of pin names")
         for key, entry in c.mapping(dev, "values", where, none=False).items():
             _check_value(c, entry, f"{where}.values.{key}")
 
