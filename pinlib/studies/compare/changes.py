@@ -74,13 +74,9 @@ class StatusChange:
         """The check's value (before → after, or the one side present) and its limit, as
         :meth:`format` shows them in parentheses: ``117 mV → 420 mV, limit 940 mV``."""
         vals = []
-        if self.old is not None and self.new is not None and \
-                format_figure(self.old_value, self.unit) == format_figure(self.new_value,
-                                                                          self.unit):
-            vals.append(format_figure(self.new_value, self.unit))  # the limit moved
-        elif self.old is not None and self.new is not None:
-            vals.append(f"{format_figure(self.old_value, self.unit)} {_ARROW} "
-                        f"{format_figure(self.new_value, self.unit)}")
+        if self.old is not None and self.new is not None:
+            old, new = (format_figure(v, self.unit) for v in (self.old_value, self.new_value))
+            vals.append(new if old == new else f"{old} {_ARROW} {new}")  # same: the limit moved
         elif self.new is not None:
             vals.append(format_figure(self.new_value, self.unit))
         else:
@@ -252,8 +248,7 @@ class ValueChange:
     def pin(self) -> str | None:
         """The pin the value belongs to (``pins.cipo.r_out`` -> ``cipo``; a timing value
         its :attr:`timing_pin`), else None."""
-        head, _, rest = self.key.partition(".")
-        return rest.partition(".")[0] if head == "pins" and rest else self.timing_pin
+        return _pin_of(self.key) or self.timing_pin
 
     def format(self, ref: str, part_id: str | None = None) -> str:
         """``U4 SDA c_in 8 pF → 80 pF, source: … [estimate]``; the part file that set
@@ -444,6 +439,12 @@ def _paired_checks(old_c: dict, new_c: dict) -> list[tuple[dict | None, dict | N
     return pairs
 
 
+def _pin_of(key: str) -> str | None:
+    """The pin a value's dotted key is under (``pins.cipo.r_out`` -> ``cipo``), else None."""
+    head, _, rest = key.partition(".")
+    return rest.partition(".")[0] if head == "pins" and rest else None
+
+
 #: The SPI signal whose pin each timing value concerns, by the device's role: a
 #: peripheral's output times are its CIPO's, its setup and hold its COPI's; a
 #: controller's the other way round.
@@ -485,12 +486,11 @@ def _idle_pins(old: dict | None, new: dict | None) -> set[str]:
     if old is None or new is None or "unconnected" not in old or "unconnected" not in new:
         return set()
 
-    def pins(entry):
-        return {k.split(".")[1] for k in entry.get("values", {}) if k.startswith("pins.")}
-
-    both = pins(old) | pins(new)
-    return {p for p in both if all(p in e["unconnected"] or p not in pins(e)
-                                   for e in (old, new))}
+    # each side's pins no bus connects, and every pin of its part (each read once)
+    sides = [(e["unconnected"], {_pin_of(k) for k in e.get("values", {})} - {None})
+             for e in (old, new)]
+    return {p for _, pins in sides for p in pins
+            if all(p in off or p not in pins for off, pins in sides)}
 
 
 def compare(old_snapshot: dict, new_snapshot: dict, *, threshold: float = DEFAULT_THRESHOLD
@@ -573,11 +573,10 @@ def compare(old_snapshot: dict, new_snapshot: dict, *, threshold: float = DEFAUL
             ov, nv = (o or {}).get("values", {}), (n or {}).get("values", {})
             idle = _idle_pins(o, n)
             timing = _timing_pins(n or o)
-            values = [ValueChange(k, ov.get(k), nv.get(k))
+            values = [ValueChange(k, ov.get(k), nv.get(k),
+                                  (_pin_of(k) or timing.get(k)) not in idle, timing.get(k))
                       for k in list(nv) + [k for k in ov if k not in nv]
                       if not _same_value(ov.get(k), nv.get(k))]
-            values = [ValueChange(v.key, v.old, v.new, (v.pin or timing.get(v.key)) not in idle,
-                                  timing.get(v.key)) for v in values]
             old_id, new_id = (o or {}).get("part"), (n or {}).get("part")
             if old_id == new_id and not values:
                 continue
