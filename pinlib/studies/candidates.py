@@ -248,13 +248,13 @@ class Ranking:
             lines = [w for ln in lines for w in wrap(ln, width)]
         shown = self.candidates if top is None else self.candidates[:top]
         if shown:
+            multi = len(self.buses) > 1
             fig_cols = []
             for b in self.buses:
                 for name, unit in FIGURES["open-drain" if b["protocol"] in OPEN_DRAIN_PROTOCOLS
                                           else "push-pull"]:
                     fig_cols.append((b["bus"], name, unit, f"{short_label(name)}@{b['bus']}"
-                                     if len(self.buses) > 1 else short_label(name)))
-            multi = len(self.buses) > 1
+                                     if multi else short_label(name)))
             head = ["#", "part", "status", "worst", "set by"] + [c[3] for c in fig_cols]
             rows, blanks = [], {}
             for i, c in enumerate(shown, 1):

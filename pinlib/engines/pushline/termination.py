@@ -116,8 +116,7 @@ def _corner_of(a: LineAnalysis, r_drv: float) -> str:
     corner (``pins.<name>.fast``): the pin's own ``r_out`` then differs from it."""
     for d in a.drivers:
         m = a.models[d.ref]
-        if d.pin.drive != "open-drain" and m.fast is not None and \
-                0.5 * (m.fast.r_rise + m.fast.r_fall) == r_drv:
+        if d.pin.drive != "open-drain" and m.fast is not None and _matched(m) == r_drv:
             return f" of {d.label} at its fast corner"
     return ""
 
@@ -161,15 +160,18 @@ def _best_match(a: LineAnalysis, r_drv: float, pullup: dict) -> tuple[float, str
                 f"least overshoot/undershoot, {_fmt(swings[best], 'V')} ({others})")
 
 
+def _matched(m) -> float:
+    """The resistance "auto" matches of one push-pull driver's model: the mean of rise
+    and fall, at its fast corner where its part states one (the corner that rings). [Ω]"""
+    m = m.fast if m.fast is not None else m
+    return 0.5 * (m.r_rise + m.r_fall)
+
+
 def auto_ideal(a: LineAnalysis) -> tuple[float, float | None]:
     """The driver resistance "auto" matches (the strongest push-pull driver's mean of
     rise and fall, at its fast corner where its part states one: the corner that rings;
     NaN with none) and ``Z0 - r_out`` (None when either is unknown). [Ω]"""
-    def strongest(m):
-        m = m.fast if m.fast is not None else m
-        return 0.5 * (m.r_rise + m.r_fall)
-
-    r_drv = min(strongest(a.models[d.ref]) for d in a.drivers
+    r_drv = min(_matched(a.models[d.ref]) for d in a.drivers
                 if d.pin.drive != "open-drain") \
         if any(d.pin.drive != "open-drain" for d in a.drivers) else math.nan
     return r_drv, (a.z0 - r_drv if math.isfinite(a.z0) and math.isfinite(r_drv) else None)

@@ -159,6 +159,7 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
     """
     terms: list[Term] = []
     c_src = controller.sources
+    t_path = 2.0 * t_bridge  # a CIPO bit's round trip crosses every bridge twice
     for p in peripherals:
         s_sample = p.sclk[mode.sample_edge]
         s_launch = p.sclk[mode.launch_edge]
@@ -177,7 +178,6 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 {"half_period": "T/2", "copi_early": p.copi.early, "sclk_late": s_sample.late,
                  "t_hold": _or0(p.t_hold)}))
         if p.cipo is not None and p.t_valid is not None:
-            t_path = 2.0 * t_bridge
             terms.append(Term(
                 "cipo-setup", p.ref, 0.5, -(s_launch.late + p.t_valid + p.cipo.late + t_path),
                 _or0(controller.t_setup), c_src.get("t_setup", ""),
@@ -206,7 +206,6 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 # CPHA 0: the first bit is driven when CS asserts and sampled on the first
                 # edge, ``lead`` after CS leaves the controller; CS crosses each bridge
                 # out and CIPO back
-                t_path = 2.0 * t_bridge
                 terms.append(Term(
                     "cipo-first-bit", p.ref, a,
                     lead - (p.cs.late + p.t_cs_valid + p.cipo.late + t_path),

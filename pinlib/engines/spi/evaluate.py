@@ -86,14 +86,14 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
     for la in sa.lines.values():
         res.lines.append(la.result)
     (f_top, by, _), (f_edge, edge_sig) = sa.clock_limits()[0], sa.edge_rule_clock()
+    by_label = path_label(by)
     if f_top <= 0:
-        res.figure("max_clock", None, "Hz",
-                   reason=f"none: no clock satisfies {path_label(by)}")
-        res.notes.append(f"highest clock: none, no clock satisfies {path_label(by)}")
+        res.figure("max_clock", None, "Hz", reason=f"none: no clock satisfies {by_label}")
+        res.notes.append(f"highest clock: none, no clock satisfies {by_label}")
     elif math.isfinite(f_top):
         res.figure("max_clock", f_top, "Hz")
         res.notes.append(f"highest clock {_fmt(f_top, 'Hz')}: what the timing budget and "
-                         f"the parts' f_max allow, set by {path_label(by)}")
+                         f"the parts' f_max allow, set by {by_label}")
     else:  # no number to give: in words, never as infinity
         res.figure("max_clock", None, "Hz", reason=NO_CLOCK_LIMIT)
         res.notes.append(f"highest clock: {NO_CLOCK_LIMIT}")

@@ -12,7 +12,7 @@ from typing import Any
 
 from pinlib import __version__
 from pinlib.core import messages as M
-from pinlib.core.errors import InputError
+from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.quantity import Threshold
 from pinlib.core.records import Record
 from pinlib.core.tomlfile import atomic_write, read_regular
@@ -168,7 +168,7 @@ def _pins_used(bus, device) -> set[str] | None:
         for sig in bus.lines:
             try:
                 pin = gpio_pin(device, sig, len(bus.lines))
-            except Exception:  # the engine names a bad pin; here nothing is hidden
+            except PinlibError:  # the engine names a bad pin; here nothing is hidden
                 return None
             if pin is not None:
                 got.add(pin[0])
@@ -185,17 +185,18 @@ def _parts_section(design) -> dict[str, dict]:
     design_dir = design.path.parent if design.path else None
     rails = _device_rails(design)
     parts: dict[str, dict] = {}
-    # the pins no bus connects, by device (a device on several buses: on none of them)
+    # the pins no bus connects, by device (a device on several buses: on none of them);
+    # the devices whose pins are not worked out (a bridging part) have none listed
     unused: dict[str, set] = {}
-    known_all: set = set()
+    not_worked_out: set = set()
     for bus in design.buses:
         for d in bus.devices:
             entry = parts.get(d.ref)
             used = _pins_used(bus, d)
             if used is None:
                 unused.pop(d.ref, None)
-                known_all.add(d.ref)
-            elif d.ref not in known_all:
+                not_worked_out.add(d.ref)
+            elif d.ref not in not_worked_out:
                 unused[d.ref] = unused.get(d.ref, set(d.part.pins)) - used
             if entry is not None:
                 if bus.id not in entry["buses"]:

@@ -218,7 +218,7 @@ class McResult:
                 # margin of -89 % says so, or it reads as a contradiction
                 warned = f"warns on {c.warns}; " if c.warns else ""
                 lines.append(f"    {c.label:<{w}}  {_pct(c.passes):<34} "
-                             f"min {_fmt_margin(c.margin_quantiles((0.0,))[0], c.margin_unit):>8}  "
+                             f"min {_fmt_margin(_low(c), c.margin_unit):>8}  "
                              f"{warned}{sens}")
             if len(shown) < len(rows):
                 lines.append(f"    … {len(rows) - len(shown)} more that vary (JSON lists every "
