@@ -117,3 +117,21 @@ def test_the_check_holds_under_python_O(tmp_path):
                           capture_output=True, text=True, timeout=120, env=env)
     assert done.returncode == 0, done.stdout + done.stderr
     assert "out of step with the batch" in done.stdout
+
+
+def test_the_capacitance_breakdown_names_only_what_the_segment_has():
+    # the demo's main segment has cables and extra capacitance, its 1.8 V segment
+    # neither: "cables 0 F" read as if a cable were there (invented demo data)
+    design = load_design(DESIGN)
+    res = opendrain.evaluate_bus(design.bus("sensors"), design)
+    cb = [c for _, _, c in res.all_checks() if c.id == "bus-capacitance"]
+    texts = [c.message for c in cb]
+    assert len(texts) == 4
+    with_all = [t for t in texts if "cables" in t]
+    assert len(with_all) == 2 and all("extra" in t and "traces" in t for t in with_all)
+    bare = [t for t in texts if "cables" not in t]
+    assert len(bare) == 2
+    assert all("pins" in t and "traces" in t and "extra" not in t and " 0 F" not in t
+               for t in bare)
+    # details keep all four, zeros included
+    assert all(set(c.details) >= {"pins", "traces", "cables", "extra"} for c in cb)

@@ -117,10 +117,14 @@ def line(w: Words, ln: LineInputs) -> None:
     rp_lo, rp_hi = r_eff * (1 - tol), r_eff * (1 + tol)
     if lim.cb_max is not None:
         p = ln.cb_parts
+        # pins and traces always; cables and extra capacitance only where the design has
+        # them (details carry all four)
+        shown = ", ".join(f"{name} {_f(p[name], 'F')}" for name in ("pins", "traces", "cables",
+                                                                  "extra")
+                          if name in ("pins", "traces") or p[name])
         grp.add(make(w.take("bus-capacitance"), lim.source_cb,
-                     f"{up} bus capacitance {_f(ln.cb, 'F')} (pins {_f(p['pins'], 'F')}, traces "
-                     f"{_f(p['traces'], 'F')}, cables {_f(p['cables'], 'F')}, extra "
-                     f"{_f(p['extra'], 'F')})", subject=up, details=dict(p)))
+                     f"{up} bus capacitance {_f(ln.cb, 'F')} ({shown})", subject=up,
+                     details=dict(p)))
     if lim.leakage_bus is not None:
         chk = make(w.take("bus-leakage"), lim.source_leakage_bus,
                    f"{up} leakage {_f(ln.leakage, 'A')}, every pin on the segment "
