@@ -36,11 +36,12 @@ __all__ = ["CHUNK", "evaluate_batched", "batched_note"]
 
 #: Candidates whose edges are solved together (and held in memory until their
 #: evaluations end; ranking 1,000 SPI parts at the demo's display position peaks near
-#: 200 MB of process, 310 MB at 512 a chunk).  The more candidates, the more edges each
-#: solver call takes (a call is one chain of sections and the steps within
-#: ``batchsolve.STEP_RATIO`` of each other: 19-23 calls for 256 candidates at the
-#: display position).
-CHUNK = 256
+#: 150 MB of process at 512 a chunk, 190 MB at 1,024).  The more candidates, the more
+#: edges each solver call takes (a call is one chain of sections and the steps within
+#: ``batchsolve.STEP_RATIO`` of each other, parted by record length: 105 calls for
+#: 1,000 candidates at the display position at 256 a chunk, 72 at 512, for about 5 %
+#: of the ranking's time).
+CHUNK = 512
 
 
 def evaluate_batched(design: Design, ref: str, parts: list[Part],
