@@ -21,6 +21,7 @@ from hypothesis import strategies as st
 
 from pinlib.engines import ppbatch as ppb
 from pinlib.engines import pptable, tablegrid
+from pinlib.engines.opendrain.rules import at_limit
 from pinlib.engines.pushpull import evaluate_bus
 from pinlib.model.design import load_design
 from pinlib.model.result import (
@@ -199,6 +200,16 @@ def test_array_margins_and_statuses_follow_the_scalar_rules(value, limit, warn):
     c = check_max("x", value, limit, "s", "", "", warn_margin=warn)
     m = float(max_margin(np.array([value]), limit)[0])
     assert (m == c.margin) or (math.isnan(m) and math.isnan(c.margin))
+
+
+@given(value=st.floats(allow_nan=True, allow_infinity=True, width=64),
+       limit=st.floats(allow_nan=False, allow_infinity=True, width=64))
+def test_one_value_margins_equal_the_arrays(value, limit):
+    # min_margin / max_margin / at_limit of one value take Python floats (no error
+    # state to set): the same numbers as the array of one
+    for f in (min_margin, max_margin, at_limit):
+        one, arr = float(f(value, limit)), float(f(np.array([value]), np.array([limit]))[0])
+        assert one == arr or (math.isnan(one) and math.isnan(arr)), f.__name__
 
 
 def test_replace_keeps_frozen_timing_records_usable_with_arrays(link):

@@ -264,6 +264,11 @@ def _array_margin(excess, limit, at_zero):
     holds (the value meets a zero limit) and ``-inf`` where it does not."""
     import numpy as np
 
+    if excess.ndim == 0 and limit.ndim == 0:  # one value, as Python floats (no error state)
+        e, lim = float(excess), float(limit)
+        if lim != 0:
+            return np.float64(e / abs(lim))
+        return np.float64(math.inf if at_zero() else -math.inf)
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):  # as float: inf, NaN
         ratio = excess / np.abs(limit)
     nonzero = limit != 0

@@ -336,6 +336,8 @@ AT_LIMIT = 1e-12
 def at_limit(x, limit):
     """``x``, or ``limit`` where ``x`` lies within :data:`AT_LIMIT` of it (floats or
     arrays). [V]"""
+    if isinstance(x, float) and isinstance(limit, float):  # one value: no arrays to make
+        return limit if abs(x - limit) <= AT_LIMIT * abs(limit) else x
     x, limit = np.asarray(x, dtype=float), np.asarray(limit, dtype=float)
     return np.where(np.abs(x - limit) <= AT_LIMIT * np.abs(limit), limit, x)[()]
 
