@@ -37,7 +37,7 @@ from pinlib.engines.pushline import (
 )
 from pinlib.engines.pushpull import evaluate_bus
 from pinlib.library import load_library
-from pinlib.model.design import Device, Line, Section, load_design
+from pinlib.model.design import Device, Geometry, Line, Section, load_design
 from pinlib.physics import rc
 from pinlib.physics.driver import driver_from_pin
 
@@ -244,6 +244,37 @@ sections = [
     assert st[2].z0 == pytest.approx(100.0, rel=1e-12)
     assert st[2].td == pytest.approx(5e-9 * 0.25, rel=1e-12)
     assert st[2].c == pytest.approx(0.5e-10 * 0.25, rel=1e-12)
+
+
+def _loss_notes(a):
+    return [n for n in a.result.notes if "lossless" in n]
+
+
+@pytest.mark.parametrize(("metres", "noted"), [(2.5, True), (1.5, False)])
+def test_a_long_line_of_per_length_values_is_noted_as_solved_lossless(lib, metres, noted):
+    # derived: 50 ps/cm over 2.5 m is 12.5 ns, past LOSS_DELAY (10 ns); 1.5 m is 7.5 ns
+    a = controller_line(lib, [trace50(metres)])
+    notes = _loss_notes(a)
+    assert bool(notes) is noted
+    if noted:
+        assert notes[0].startswith("2.5 m of per-length values (a delay of 12.5 ns) carry "
+                                   "no resistance")
+        assert "measurement" in notes[0]
+
+
+@pytest.mark.parametrize(("metres", "noted"), [(4.0, True), (3.0, False)])
+def test_a_trace_whose_copper_resistance_nears_z0_is_noted(lib, metres, noted):
+    ms = Geometry("ms", "microstrip", 0.3e-3, 0.2e-3, None, 35e-6, 4.3)
+    a = controller_line(lib, [Section(metres, ms)])
+    notes = _loss_notes(a)
+    assert bool(notes) is noted
+    if noted:
+        # derived: rho L / (w t), rho = 1.7241e-8 ohm m (from memory: IEC 60028, annealed
+        # copper at 20 °C; docs/references.md [M]): 1.642 ohm/m, 6.57 ohm over 4 m, 12 %
+        # of Z0 55.08 ohm
+        # (published: scikit-rf 2.2 MLine of this geometry, docs/references.md)
+        assert "copper resistance, 6.57 Ω (DC at 20 °C" in notes[0]
+        assert "is 12 % of Z0 55.1 Ω" in notes[0]
 
 
 # --------------------------------------------------------------------------- termination

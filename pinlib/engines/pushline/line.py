@@ -26,7 +26,10 @@ from pinlib.engines.pushline.rules import (
     _SETTLE_DELAYS,
     LINE_DELAY_RULE,
     LONG_LINE_RULE,
+    LOSS_DELAY,
+    LOSS_FRACTION,
     LUMPED_RULE,
+    RHO_COPPER,
 )
 from pinlib.engines.pushline.sections import line_model, stretches_of
 from pinlib.engines.pushline.sichecks import _si_checks
@@ -229,10 +232,38 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
             res.figure(name, None, unit)
         return a
     _electrical_length(a, notes)
+    _loss_note(a, notes)
     _solve_cases(a, pullup, clock, clock_line, warn_margin, notes)
     _add_checks(a, res, clock, clock_line, warn_margin)
     _add_figures(a, res)
     return a
+
+
+def _loss_note(a: LineAnalysis, notes: list) -> None:
+    """A note where the lossless model flatters the line (:data:`LOSS_RULE`): its traces'
+    copper resistance against Z0, or the delay of its sections that carry no resistance."""
+    z0s = [s.z0 for s in a.stretches if s.td > 0]
+    if not z0s:
+        return  # a lumped capacitance: no line to be lossy
+    r_dc = sum(RHO_COPPER * st.length / (sec.geometry.width * sec.geometry.thickness)
+               for sec, st in zip(a.line.sections, a.stretches, strict=True)
+               if sec.geometry is not None)
+    bare = [st for sec, st in zip(a.line.sections, a.stretches, strict=True)
+            if sec.geometry is None and st.td > 0]
+    td_bare = sum(st.td for st in bare)
+    z_low = min(z0s)
+    effect = ("pinlib solves the line lossless, so the far-end edges are likely slower "
+              "and the overshoot smaller than shown; confirm them by measurement or a lossy "
+              "line model (common practice, no source)")
+    if r_dc >= LOSS_FRACTION * z_low:
+        notes.append(f"the traces' copper resistance, {_fmt(r_dc, 'Ω')} (DC at 20 °C, "
+                     f"IEC 60028 copper; more on an edge), is {r_dc / z_low * 100:.0f} % of Z0 "
+                     f"{_fmt(z_low, 'Ω')}: {effect}")
+    if td_bare >= LOSS_DELAY:
+        kinds = " and ".join(dict.fromkeys(st.label for st in bare))
+        notes.append(f"{_fmt(sum(st.length for st in bare), 'm')} of {kinds} (a delay of "
+                     f"{_fmt(td_bare, 's')}) carry no resistance or dielectric loss: "
+                     f"{effect}")
 
 
 def _lumped_note(a: LineAnalysis, notes: list) -> None:

@@ -31,6 +31,18 @@ LINE_DELAY_RULE = (
     "bit in flight, and a board-level bus model (lossless lines, lines of one bus matched "
     "in delay) no longer describes it (common practice, no source)")
 
+#: Resistivity of annealed copper at 20 °C (IEC 60028, the International Annealed Copper
+#: Standard). [Ω m]
+RHO_COPPER = 1.7241e-8
+#: The line is solved lossless; a note says so where its traces' copper resistance
+#: (DC: the least it has, the skin effect adds more on an edge) reaches this fraction of
+#: the lowest Z0 of its sections (common practice, no source) ...
+LOSS_FRACTION = 0.10
+#: ... or, for sections that carry no resistance (per-length values, cable classes),
+#: where their one-way delay reaches this (about 2 m of cable; common practice, no
+#: source). [s]
+LOSS_DELAY = 10e-9
+
 #: Largest undershoot below ground allowed when a pin's abs_max leaves more room. [V]
 UNDERSHOOT_DEFAULT = 0.5
 UNDERSHOOT_RULE = (
