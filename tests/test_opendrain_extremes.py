@@ -43,6 +43,11 @@ def test_a_line_the_sink_cannot_pull_down_has_no_fall_time(tmp_path):
     assert "inf" not in chk.message and chk.fix and chk.message.count(chk.fix) == 1
     for name in ("fall_time", "fall_time_sda", "fall_time_scl", "scl_frequency_effective"):
         assert fig(res, name) is None, name
+    # each says why in words, naming the line the clock is worked out from
+    assert res.figures["fall_time"].reason == ("none: the line never falls to VIL (see "
+                                               "Fall time)")
+    assert res.figures["scl_frequency_effective"].reason == ("none: SCL never falls to VIL "
+                                                             "(see Fall time)")
     assert "no effective frequency" in res.check("scl-frequency").message
     _no_infinity(res)
 

@@ -79,8 +79,9 @@ RP_MAX_UNBOUNDED = "no upper bound (Cb is 0)"
 RP_MIN_NONE = "none: no pull-up is large enough for the weakest sink (see Pull-up window)"
 #: Why the SDA setup margin is none where no device gives the segment data to read.
 SETUP_NONE = "none: no target drives SDA, so no read's data setup to budget"
-#: Why a fall time (and the clock worked out from it) is none where it is infinite.
-FALL_NONE = "none: the line never falls to VIL (see Fall time)"
+#: Why a fall time (and the clock worked out from it) is none where it is infinite
+#: (``{line}``: "the line", or "SCL" for the clock worked out from SCL's fall).
+FALL_NONE = "none: {line} never falls to VIL (see Fall time)"
 
 
 def _unbounded(grp: Group) -> None:
@@ -98,10 +99,10 @@ def _unbounded(grp: Group) -> None:
     for name in _FALL_FIGURES:
         f = grp.figures.get(name)
         if f is not None and f.value is not None and not math.isfinite(f.value):
-            grp.figure(name, None, f.unit, FALL_NONE)
+            grp.figure(name, None, f.unit, FALL_NONE.format(line="the line"))
             if name == "fall_time_scl":
                 grp.figure("scl_frequency_effective", None, _unit("scl_frequency_effective"),
-                           FALL_NONE.replace("the line", "SCL"))
+                           FALL_NONE.format(line="SCL"))
 
 
 def _timing(w: Words, sb) -> None:
