@@ -192,6 +192,22 @@ def test_the_charts_draw_what_the_engine_solved(tight):
     w = plotdata.noise_waveform_data(c)
     assert set(w.traces) == {"held low, near end", "held low, far end",
                              "held high, near end", "held high, far end"}
+    # drawn until the shown traces have settled back (within 2 % of their largest
+    # excursion, and a quarter of that time on): each held state on its own time axis
+
+    def settled_at(k):
+        dev = np.abs(w.traces[k] - w.traces[k][0])
+        return w.t[min(np.flatnonzero(dev > 0.02 * dev.max())[-1] + 1, len(w.t) - 1)]
+
+    for held in ("low", "high"):
+        labels = [k for k in w.traces if k.startswith(f"held {held}")]
+        t, traces = w.window(labels)
+        assert list(traces) == labels and all(len(v) == len(t) for v in traces.values())
+        assert np.array_equal(t, w.t[:len(t)])
+        last = max(settled_at(k) for k in labels)
+        assert t[-1] >= last  # every excursion drawn whole, and little after
+        assert t[-1] <= 1.25 * last + (w.t[1] - w.t[0])
+    assert len(w.window()[0]) >= len(w.window(["held low, near end"])[0])
     # each trace in the direction that hurts: the held-high one dips to the checked level
     low = min(w.traces["held high, near end"])
     check = next(k for k in c.checks if k.id == "crosstalk-high"

@@ -107,8 +107,8 @@ def _expected_charts(design) -> dict[str, int]:
                     drivers = 1
                 n["edge-vs-load"] += drivers
                 n["waveforms"] += drivers
-    n["noise-vs-spacing"] += len(design.couplings)  # and its victim's waveforms
-    n["waveforms"] += len(design.couplings)
+    n["noise-vs-spacing"] += len(design.couplings)  # and its victim's waveforms, held
+    n["waveforms"] += 2 * len(design.couplings)     # low and held high on axes of their own
     return n
 
 
@@ -162,7 +162,7 @@ def test_every_chart_svg_is_present(page, demo):
     expected = _expected_charts(design)
     # the demo: 3 open-drain segments, two SPI buses with 4 and 3 routed lines, one
     # coupling
-    assert expected == {"pullup-window": 6, "edge-vs-load": 7, "waveforms": 8,
+    assert expected == {"pullup-window": 6, "edge-vs-load": 7, "waveforms": 9,
                         "timing-budget": 2, "noise-vs-spacing": 1}
     found = _figures_by_kind(page)
     for kind, n in expected.items():
@@ -337,7 +337,7 @@ def test_render_functions(demo):
     assert f"{mc['checks'][0]['pass_fraction']:.2%}" in text
     assert 'id="monte-carlo"' in text
     md = review.render_markdown(design, result, mc=mc)
-    assert "## Monte Carlo" in md and md.count("data:image/svg+xml") == 25
+    assert "## Monte Carlo" in md and md.count("data:image/svg+xml") == 26
 
 
 def _monte_carlo_result() -> dict:
@@ -633,7 +633,7 @@ def test_command_writes_html(tmp_path, capsys):
     code = main(["report", str(DEMO), "--html", str(out)])
     assert code == 0  # the demo warns, which passes
     text = out.read_text(encoding="utf-8")
-    assert text.count("<svg") == 24
+    assert text.count("<svg") == 25
     assert "wrote" in capsys.readouterr().err
     assert not list(tmp_path.glob(".review.html.*"))  # no temporary file left
 
@@ -643,7 +643,7 @@ def test_command_writes_markdown_with_its_charts(tmp_path):
     assert main(["report", str(DEMO), "--md", str(out)]) == 0
     text = out.read_text(encoding="utf-8")
     charts = sorted((tmp_path / "board-charts").glob("*.svg"))
-    assert len(charts) == 24
+    assert len(charts) == 25
     for c in charts:
         assert f"(board-charts/{c.name})" in text
 
@@ -667,7 +667,7 @@ def test_command_rerun_leaves_only_the_charts_the_new_report_links(tmp_path, cap
     assert main(["report", str(DEMO), "--md", str(out)]) == 0
     text = out.read_text(encoding="utf-8")
     linked = set(re.findall(r"\(board-charts/([^)]+)\)", text))
-    assert len(linked) == 24
+    assert len(linked) == 25
     assert {p.name for p in folder.iterdir()} == linked | set(mine)
     for name, text in mine.items():
         assert (folder / name).read_text(encoding="utf-8") == text
@@ -852,7 +852,7 @@ def test_report_renders_in_chromium(page, tmp_path):
     assert dom.returncode == 0
     assert _console_lines(dom.stderr) == []
     figures = _figures_by_kind(dom.stdout)
-    assert sum(len(v) for v in figures.values()) == 24
+    assert sum(len(v) for v in figures.values()) == 25
     assert all(b.count("<svg") == 1 for v in figures.values() for b in v)
 
 

@@ -959,6 +959,12 @@ def test_crosstalk_explorer_is_the_engines_coupling():
     assert x.updates == 1                   # three settings, one recompute
     x.show.value = "held high"              # a click: the chart only, nothing solved again
     assert x.updates == 1 and "held low" not in x.wave_chart.svg
+    # each choice drawn to where its traces settle, not over the whole record (a line
+    # held high through its pull-up recovers far slower than a driven-low one)
+    x.show.value = "held low"
+    low = [k for k in x.waves.traces if k.startswith("held low")]
+    rows = [r for layer in x.wave_chart.data() for r in layer if "t" in r]
+    assert len(rows) == 2 * len(x.waves.window(low)[0]) < 2 * len(x.waves.t)
     with pytest.raises(InputError):
         x.set(spacing=-1.0)
 

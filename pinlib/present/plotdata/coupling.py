@@ -89,6 +89,14 @@ def _within_from(spacing: np.ndarray, peak: np.ndarray, allowed: float) -> float
     return float(np.exp(s0 + (s1 - s0) * (p0 - allowed) / (p0 - p1)))
 
 
+#: The victim's waveforms are drawn until the last drawn trace has come back within this
+#: fraction of its largest excursion from its held level, and on for a quarter of that time
+#: again, so that the return shows (a held-high line recovering through its pull-up over
+#: 100 ns squeezed a 6 ns held-low pulse into the chart's first pixels).
+_QUIET = 0.02
+_TAIL = 0.25
+
+
 @value_class(frozen=True)
 class NoiseWaves:
     """The victim's voltage at each end, held low and held high, at the design point:
@@ -101,6 +109,24 @@ class NoiseWaves:
     v_il: float
     v_ih: float
     vdd: float
+
+    def window(self, labels=None) -> tuple[np.ndarray, dict]:
+        """``(t, traces)`` of the traces named in ``labels`` (all by default), cut where
+        the last of them has come back within :data:`_QUIET` of its largest excursion
+        and a quarter of that time again has passed (the whole record where one never
+        does)."""
+        traces = {k: v for k, v in self.traces.items() if labels is None or k in labels}
+        last = 0.0
+        for v in traces.values():
+            dev = np.abs(np.asarray(v) - v[0])
+            beyond = np.flatnonzero(dev > _QUIET * dev.max())
+            if beyond.size:
+                last = max(last, float(self.t[min(beyond[-1] + 1, self.t.size - 1)]))
+        n = int(np.searchsorted(self.t, last * (1.0 + _TAIL), side="right"))
+        if last <= 0.0 or n >= self.t.size:
+            return self.t, traces
+        n = max(n, 2)
+        return self.t[:n], {k: np.asarray(v)[:n] for k, v in traces.items()}
 
 
 def noise_waveform_data(result) -> NoiseWaves:

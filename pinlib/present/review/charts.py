@@ -183,14 +183,22 @@ def _coupling_charts(result, keys, charts):
             within_spacing=d.within_spacing, t_sp=d.t_sp, searched_from=d.searched_from,
             title=title,
             subtitle=f"parallel length {_f(d.length, 'm')}")))
-    title = f"Victim noise: {result.victim} beside {result.aggressor}"
-    caption = (f"The victim's voltage at both ends of the run, held low and held high, "
-               f"each for the aggressor's edge (rising or falling: the same noise, its sign "
-               f"turned) that pushes it toward its threshold. Shaded: between VIL "
-               f"{_f(wv.v_il, 'V')} and VIH {_f(wv.v_ih, 'V')}; dotted: VDD "
-               f"{_f(wv.vdd, 'V')}.")
-    charts[place].append(_draw(
-        keys(result.victim, result.aggressor, "noise-waveforms"), "waveforms", title,
-        caption, lambda wv=wv, title=title: ch.waveforms(
-            wv.t, wv.traces, v_il=wv.v_il, v_ih=wv.v_ih, vdd=wv.vdd, title=title,
-            subtitle="at the victim's receivers")))
+    # held low and held high on time axes of their own: a line held high through its
+    # pull-up recovers over a far longer time than a driven-low one, whose pulse a shared
+    # axis squeezed into its first pixels
+    for held in ("low", "high"):
+        labels = [k for k in wv.traces if k.startswith(f"held {held}")]
+        if not labels:
+            continue
+        title = f"Victim noise, held {held}: {result.victim} beside {result.aggressor}"
+        level = f"VIL {_f(wv.v_il, 'V')}" if held == "low" else f"VIH {_f(wv.v_ih, 'V')}"
+        caption = (f"The victim's voltage at both ends of the run, held {held}, for the "
+                   f"aggressor's edge (rising or falling: the same noise, its sign turned) "
+                   f"that pushes it toward {level}; drawn until it has settled back. "
+                   f"Shaded: between VIL {_f(wv.v_il, 'V')} and VIH {_f(wv.v_ih, 'V')}; "
+                   f"dotted: VDD {_f(wv.vdd, 'V')}.")
+        charts[place].append(_draw(
+            keys(result.victim, result.aggressor, f"noise-waveforms-{held}"), "waveforms",
+            title, caption, lambda wv=wv, labels=labels, title=title: ch.waveforms(
+                *wv.window(labels), v_il=wv.v_il, v_ih=wv.v_ih, vdd=wv.vdd, title=title,
+                subtitle="at the victim's receivers")))

@@ -189,9 +189,9 @@ class CrosstalkExplorer(_Panel):
         if w is None:
             return
         shown = self.show.value
-        traces = {k: v for k, v in w.traces.items() if shown == "both" or k.startswith(shown)}
+        t, traces = w.window([k for k in w.traces if shown == "both" or k.startswith(shown)])
         self.wave_chart.draw(lambda: charts.spec(
-            charts.waveforms, w.t, traces, v_il=w.v_il, v_ih=w.v_ih, vdd=w.vdd,
+            charts.waveforms, t, traces, v_il=w.v_il, v_ih=w.v_ih, vdd=w.vdd,
             title="Victim noise", subtitle="at the victim's receivers"))
 
     def static_view(self) -> StaticView:
