@@ -219,15 +219,14 @@ def test_input_errors_name_the_field(sections, caps, kwargs, field):
 
 
 def test_choose_step_divides_the_shortest_delay():
-    # derived: 10 steps over the shortest of ramp (1 ns), delays (0.35 ns) and tau
+    # derived: 20 steps over the shortest of ramp (1 ns), delays (0.35 ns) and tau
     dt = wf.choose_step([0.35e-9, 1.3e-9, 0.0], 1e-9)
-    assert dt == pytest.approx(0.35e-9 / 10, rel=1e-12)
+    assert dt == pytest.approx(0.35e-9 / 20, rel=1e-12)
     dt = wf.choose_step([0.35e-9], 1e-9, tau=0.1e-9)
     assert 0.35e-9 / dt == pytest.approx(round(0.35e-9 / dt), abs=1e-9)
-    assert dt <= 0.1e-9 / 10
-    assert wf.choose_step([], 2e-9) == pytest.approx(2e-10, rel=1e-12)
-    assert wf.choose_step([], 0.0, tau=4e-9) == pytest.approx(4e-10, rel=1e-12)
-    assert wf.choose_step([], 0.0, tau=4e-9, steps=20) == pytest.approx(2e-10, rel=1e-12)
+    assert dt <= 0.1e-9 / 20
+    assert wf.choose_step([], 2e-9) == pytest.approx(1e-10, rel=1e-12)
+    assert wf.choose_step([], 0.0, tau=4e-9) == pytest.approx(2e-10, rel=1e-12)
 
 
 @pytest.mark.parametrize(("kwargs", "names", "shapes"), [

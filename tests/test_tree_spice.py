@@ -7,15 +7,14 @@ resistance none or matched (``Rs = Z0 - r_out``); the driver the controller (COP
 as on CIPO, the device nearest to it or the farthest one while the others load the
 line.  Every receiver's 10-90 % edge (:func:`pinlib.physics.waveform.edge_time` on both
 waveforms) must agree within 1 % and its overshoot within 0.02 VDD, with pinlib on the
-grid :func:`pinlib.physics.waveform.choose_step` gives (10 steps per shortest ramp or
+grid :func:`pinlib.physics.waveform.choose_step` gives (20 steps per shortest ramp or
 delay).
 
 ngspice is the reference: TMAX 1 ps against edges of 0.6 ns and more; halving it moves
 no edge by more than 1e-5 relative (``test_ngspice_has_converged``; measured 5e-7, and
-1.4e-6 at 2 ps).  pinlib's worst difference over the case set at 10 steps was 0.094 %
-on an edge and 0.0013 VDD on an overshoot (measured 2026-12-04; 0.02 % and 0.0003 VDD at
-20 steps, 0.005 % at 40: second order in the step).  All values are invented, typical
-of a board.
+1.4e-6 at 2 ps).  pinlib's worst difference over the case set at 20 steps was 0.02 % on
+an edge and 0.0003 VDD on an overshoot (0.09 % and 0.0013 VDD at 10 steps, 0.005 % at
+40: second order in the step).  All values are invented, typical of a board.
 """
 
 from __future__ import annotations

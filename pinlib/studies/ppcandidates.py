@@ -36,10 +36,10 @@ __all__ = ["CHUNK", "evaluate_batched", "batched_note"]
 
 #: Candidates whose edges are solved together (and held in memory until their
 #: evaluations end; ranking 1,000 SPI parts at the demo's display position peaks near
-#: 150 MB of process at 512 a chunk, 190 MB at 1,024).  The more candidates, the more
+#: 215 MB of process at 512 a chunk, 145 MB at 256).  The more candidates, the more
 #: edges each solver call takes (a call is one chain of sections and the steps within
-#: ``batchsolve.STEP_RATIO`` of each other, parted by record length: 72 calls for
-#: 1,000 candidates at the display position at 256 a chunk, 50 at 512, for about 5 %
+#: ``batchsolve.STEP_RATIO`` of each other, parted by record length: 105 calls for
+#: 1,000 candidates at the display position at 256 a chunk, 66 at 512, for about 5 %
 #: of the ranking's time).
 CHUNK = 512
 

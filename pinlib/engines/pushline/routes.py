@@ -269,7 +269,7 @@ def tree_edges(net: RouteNet, source: int, r_source: float, t_ramp: float,
     longest one-way delay, and is not lengthened
     (:data:`_ROUTE_EXTENSIONS`; each node says whether it ended within 1 % of the
     swing).  The step is the tree solver's (:func:`pinlib.physics.waveform.choose_step`:
-    10 per shortest ramp or delay), at least 4,000 over the record, dividing the
+    20 per shortest ramp or delay), at least 4,000 over the record, dividing the
     shortest delay.  The tree is solved by
     :func:`pinlib.physics.waveform.tree_response`; the circuit is linear, so the edge is
     ``v_from + (v_to - v_from) u(t)`` with ``u`` its unit response.
@@ -365,7 +365,7 @@ def _unit_tree(net: RouteNet, source: int, r_source: float, t_ramp: float,
     distributed = distributed and bool(delays)
     n_nodes = len(net.names)
     for _ in range(_ROUTE_EXTENSIONS + 1):
-        # the tree solver's own step (10 per shortest ramp or delay; its error against
+        # the tree solver's own step (20 per shortest ramp or delay; its error against
         # ngspice is stated there), at least _MIN_STEPS over the record
         dt = min(wf.choose_step(delays if distributed else [], t_ramp,
                                 tau=tau / _STEPS_PER_TAU * wf.STEPS_PER_EDGE),

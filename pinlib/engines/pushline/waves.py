@@ -29,12 +29,6 @@ from pinlib.engines.pushline.rules import (
 from pinlib.engines.pushline.sections import Stretch
 from pinlib.physics import waveform as wf
 
-#: Samples of a lumped edge (a closed form) per the longer of its ramp and time
-#: constant: the crossings read off it are interpolated between samples, off by about
-#: ``dt^2 / (8 tau)`` (0.1 % of the edge at 10, under 0.03 % at 20; common practice,
-#: no source).
-_CLOSED_FORM_SAMPLES = 20
-
 
 @value_class(frozen=True)
 class EdgeWave:
@@ -168,13 +162,12 @@ def simulate_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float,
     1e-12 of its level that they read as rounding, so every figure is the longer
     record's.  A series-terminated line comes to rest in about half the longer
     record.
-    The step is :func:`pinlib.physics.waveform.choose_step`'s: 1/10
+    The step is :func:`pinlib.physics.waveform.choose_step`'s: 1/20
     of the shortest section delay, of the ramp or of the far end's time constant
     against the last section (``z0 c_far``), dividing the shortest delay exactly (over
-    the ngspice case set of ``tests/test_tree_spice.py`` every edge within 0.09 %); a
-    lumped load, a closed form exact at any sample, takes 1/:data:`_CLOSED_FORM_SAMPLES`
-    of the longer of the ramp and the time constant (its samples cost next to nothing,
-    and its only error is the interpolation of its crossings).  It is made coarser
+    the ngspice case set of ``tests/test_tree_spice.py`` every edge within 0.02 %); a
+    lumped load, exact at any sample, takes 1/20 of the longer of the ramp and the time
+    constant.  It is made coarser
     only where the record would need more than ``_MAX_STEPS`` steps, and a record that
     would need more than :data:`MAX_TIME_STEPS` steps is refused with an InputError.
     """
@@ -309,7 +302,7 @@ def edge_grid(stretches: Sequence[Stretch], r_source: float, t_ramp: float, c_fa
     if distributed:  # the far end's corner: its capacitance against the last line
         dt = wf.choose_step(delays, t_ramp, tau=sections[-1][0] * c_lumped_far)
     else:  # exact at any sample: the step only has to sample the edge
-        dt = wf.choose_step([], 0.0, tau=max(t_ramp, tau), steps=_CLOSED_FORM_SAMPLES)
+        dt = wf.choose_step([], 0.0, tau=max(t_ramp, tau))
     dt = max(dt, t_end / _MAX_STEPS)
     d_min = min(delays) if distributed else math.nan
     if distributed:

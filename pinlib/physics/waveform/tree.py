@@ -26,7 +26,7 @@ case).  A delay of at least one step that falls between two samples is taken by
 linear interpolation between them; one shorter than a step is rounded to one step (a
 :class:`ValidityWarning` above 5 % of the delay).
 
-``choose_step(delays, t_ramp, *, tau=0.0, steps=STEPS_PER_EDGE) -> dt``: 10 steps per
+``choose_step(delays, t_ramp, *, tau=0.0, steps=STEPS_PER_EDGE) -> dt``: 20 steps per
 shortest ramp, delay or receiver time constant, dividing the shortest delay (the grid
 is then ``np.arange(n) * dt``).
 """
@@ -59,11 +59,8 @@ __all__ = ["TreeWaveform", "tree_response", "choose_step", "is_short", "lump_sho
 #: Time steps per shortest source ramp or line delay chosen by :func:`choose_step`.
 #: Against ngspice (tests/test_tree_spice.py: daisy chains, stubs, a star, series
 #: resistance none and matched, the driver at the controller and at the nearest and
-#: farthest device) the worst receiver's 10-90 % edge differed by 0.09 % and the worst
-#: overshoot by 0.0013 VDD at 10 steps, against bounds of 1 % and 0.02 VDD (0.02 % and
-#: 0.0003 VDD at 20 steps, for twice the solver's work: the error is second order in
-#: the step).
-STEPS_PER_EDGE = 10
+#: farthest device) it keeps every receiver's 10-90 % edge within 1 %.
+STEPS_PER_EDGE = 20
 
 #: A section whose one-way delay is under this fraction of the source ramp is solved as
 #: its capacitance, half at each of its two nodes (:func:`lump_short`).  Solved as a
@@ -247,14 +244,13 @@ def choose_step(delays, t_ramp, *, tau=0.0, steps=STEPS_PER_EDGE) -> float:
     ramp's corners and the delays.  What a coarse step still costs is the reading of
     the edge: crossings are interpolated linearly between samples, which misses by
     about ``dt^2 / (8 tau)`` on an RC corner of time constant ``tau``; ``tau`` bounds
-    that.  Over the ngspice case set of ``tests/test_tree_spice.py`` 10 steps per ramp
-    or delay kept every edge within 0.09 % and every overshoot within 0.0013 VDD (20
-    steps: 0.02 % and 0.0003 VDD).
+    that.  Over the ngspice case set of ``tests/test_tree_spice.py`` 20 steps per ramp
+    or delay kept every edge within 0.02 % and every overshoot within 0.0003 VDD.
 
     Examples
     --------
     >>> choose_step([0.3e-9, 1.0e-9], 1e-9) * 1e12
-    30.0
+    15.0
     """
     positive = [float(d) for d in delays if float(d) > 0.0]
     spans = positive + [float(x) for x in (t_ramp, tau) if x > 0.0]
