@@ -310,3 +310,15 @@ def test_detail_notes_name_a_figure_by_its_label(monkeypatch, capsys):
     assert "- highest clock 24 MHz: what the timing budget" in out  # the engine's words
     assert "- CIPO setup margin: not computed" in out
     assert not re.search(r"\b(max_clock|max_clock_edge_rule|cipo_setup_margin)\b", out)
+
+
+def test_the_ringing_row_says_its_numbers_count_re_crossings(monkeypatch, capsys, demo):
+    # the ringing check's value and limit are counts (unit "", as the result format has
+    # a dimensionless number): the checks table's label says of what, so that a row
+    # reads "Ringing re-crossings ... 0  0" rather than a bare "0  0"
+    _, out = _run(monkeypatch, capsys, 80, "--detail")
+    rows = [ln for ln in out.splitlines() if re.match(r"\s+(PASS|WARN|FAIL)\s+Ringing", ln)]
+    assert rows and all(re.search(r"Ringing re-crossings\s+U\d+\s+0\s+0\s", r)
+                        for r in rows), rows
+    ringing = [c for b in demo.results() for _, _, c in b.all_checks() if c.id == "ringing"]
+    assert ringing and all(c.to_json()["unit"] == "" for c in ringing)
