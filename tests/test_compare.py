@@ -522,6 +522,29 @@ def test_a_margin_that_moves_without_a_status_change_is_listed():
     assert not compare(old, new, threshold=0.8).margin_changes
 
 
+def test_a_margin_in_seconds_is_listed_and_shown_in_its_unit():
+    # invented check values. An SPI timing check against a requirement of 0 has its
+    # slack in seconds as margin (margin_unit "s"): 16.5 ns -> 1 ns is a move of 94 % of
+    # itself, though only 1.55e-8 "points"; it is listed, in ns, not as "+0 % -> +0 %"
+    chk = {"id": "cipo-setup", "status": "pass", "value": 16.5e-9, "limit": 0.0,
+           "unit": "s", "margin": 16.5e-9, "margin_unit": "s", "source": "src",
+           "message": "", "subject": "U2"}
+    old = _result({}, checks=[chk])
+    new = _result({}, checks=[dict(chk, value=1e-9, margin=1e-9)])
+    (m,) = compare(old, new).margin_changes
+    assert m.format() == "b CIPO setup U2: margin +16.5 ns → +1 ns (16.5 ns → 1 ns, limit 0 s)"
+    j = m.to_json()
+    assert (j["old_margin_unit"], j["new_margin_unit"]) == ("s", "s")
+    # derived: 16.5 ns -> 16 ns moved 3 % of itself, under the default 5 %
+    assert not compare(old, _result({}, checks=[dict(chk, value=16e-9, margin=16e-9)])
+                       ).margin_changes
+    # a relative margin's change carries no unit keys
+    rel = dict(chk, limit=2e-9, margin=7.25, margin_unit=None)
+    (r,) = compare(_result({}, checks=[rel]),
+                   _result({}, checks=[dict(rel, value=3e-9, margin=0.5)])).margin_changes
+    assert "old_margin_unit" not in r.to_json()
+
+
 def test_parse_change_threshold():
     assert parse_change_threshold("5%") == pytest.approx(0.05)
     assert parse_change_threshold("2.5 %") == pytest.approx(0.025)

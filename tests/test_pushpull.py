@@ -716,3 +716,19 @@ lines.reset = { length = "10 cm", capacitance = "0.001 pF/cm", delay = "1 µs/m"
     assert any("had not settled" in n for n in ln.notes)
     assert all(math.isfinite(f.value) for f in ln.figures.values()
                if isinstance(f.value, float))
+
+
+def test_the_termination_check_gives_its_target_as_no_limit(lib):
+    # the check reports the resistor "auto" chose; Z0 - r_out is the target it rounds to
+    # E24, not a limit: in the Limit column "0 Ω against 26.7 Ω" read as a shortfall on
+    # a short line, and "27 Ω against 26.7 Ω" as an excess.  No limit (JSON null); the
+    # target is in the message and details.rs_ideal
+    # derived: Z0 = 50 ps/cm / 1 pF/cm = 50 Ω, r_out 20 Ω -> 30 Ω (E24)
+    long_ = controller_line(lib, [trace50(0.25)], "auto").result.check("series-termination")
+    short = controller_line(lib, [trace50(0.01)], "auto").result.check("series-termination")
+    assert long_.value == 30.0 and short.value == 0.0
+    for chk in (long_, short):
+        assert chk.limit is None and chk.to_json()["limit"] is None
+        assert chk.status == "pass" and chk.margin is None
+        assert chk.details["rs_ideal"] == pytest.approx(30.0, rel=1e-12)
+    assert "Z0 - r_out = 30 Ω, nearest E24" in long_.message

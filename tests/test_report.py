@@ -287,6 +287,28 @@ def test_a_bus_line_names_the_failing_check_as_its_worst_not_a_deeper_warning():
     assert "worst margin −5 % (COPI setup U2)" in line.replace("-", "−"), line
 
 
+def test_a_bus_that_warns_on_a_margin_in_seconds_alone_names_it_as_its_worst():
+    # invented: a CIPO setup slack of -38 ps against a t_setup the controller does not
+    # record (taken as 0, margin_unit "s") warns; the bus line named a passing supply
+    # check's +4 % as the worst margin, away from the check that warns.  A margin in a
+    # unit is still never ranked against fractions of a status that has them
+    from pinlib.model.result import BusResult, Check
+    from pinlib.present.report import bus_line
+
+    bus = BusResult(id="s", protocol="spi")
+    bus.add(Check("cipo-setup", "warn", -3.8e-11, 0.0, "s", -3.8e-11, "taken as 0", "short",
+                  subject="U2", margin_unit="s"))
+    bus.add(Check("cipo-hold", "pass", 9e-9, 0.0, "s", 9e-9, "taken as 0", "ok",
+                  subject="U2", margin_unit="s"))
+    bus.add(Check("supply-range", "pass", 3.46, 3.6, "V", 0.04, "datasheet", "ok",
+                  subject="U1"))
+    line = bus_line(bus)
+    assert "worst margin −38 ps (CIPO setup U2)" in line, line
+    # with a relative margin among the warnings, that one is named
+    bus.add(Check("edge-time", "warn", 9e-9, 1e-9, "s", 0.05, "rule of thumb", "slow"))
+    assert "worst margin +5 % (Edge time)" in bus_line(bus)
+
+
 def test_a_relation_and_a_sign_stay_with_their_number_and_the_clock_names_its_check(
         monkeypatch, capsys):
     # invented 1 km link: at 80 columns "margin <" ended a line and "-999 %" began the
@@ -310,3 +332,15 @@ def test_detail_notes_name_a_figure_by_its_label(monkeypatch, capsys):
     assert "- highest clock 24 MHz: what the timing budget" in out  # the engine's words
     assert "- CIPO setup margin: not computed" in out
     assert not re.search(r"\b(max_clock|max_clock_edge_rule|cipo_setup_margin)\b", out)
+
+
+def test_the_ringing_row_says_its_numbers_count_re_crossings(monkeypatch, capsys, demo):
+    # the ringing check's value and limit are counts (unit "", as the result format has
+    # a dimensionless number): the checks table's label says of what, so that a row
+    # reads "Ringing re-crossings ... 0  0" rather than a bare "0  0"
+    _, out = _run(monkeypatch, capsys, 80, "--detail")
+    rows = [ln for ln in out.splitlines() if re.match(r"\s+(PASS|WARN|FAIL)\s+Ringing", ln)]
+    assert rows and all(re.search(r"Ringing re-crossings\s+U\d+\s+0\s+0\s", r)
+                        for r in rows), rows
+    ringing = [c for b in demo.results() for _, _, c in b.all_checks() if c.id == "ringing"]
+    assert ringing and all(c.to_json()["unit"] == "" for c in ringing)

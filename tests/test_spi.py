@@ -466,3 +466,59 @@ def test_a_cpha_0_peripheral_without_t_cs_valid_is_noted(tmp_path):
     assert any("records no t_cs_valid" in n and "not budgeted" in n for n in res.notes)
     d3, bus3 = write_design(tmp_path, mode=3, name="m3.toml")
     assert not any("t_cs_valid" in n for n in evaluate_bus(bus3, d3).notes)
+
+
+# ------------------------------------------------------- requirements of zero: slack in s
+
+
+def _ctrl_with(tmp_path, part_id: str, setup_hold: str) -> None:
+    """pp-ctrl (invented test data) as ``part_id`` with its t_setup/t_hold lines replaced
+    by ``setup_hold`` (TOML lines; "" to record none)."""
+    text = (DATA / "pp-ctrl.toml").read_text(encoding="utf-8")
+    text = text.replace('id = "pp-ctrl"', f'id = "{part_id}"')
+    text = re.sub(r'^t_(setup|hold) = .*\n', "", text, flags=re.MULTILINE)
+    text = text.replace('t_valid = "5 ns"\n', 't_valid = "5 ns"\n' + setup_hold)
+    (tmp_path / f"{part_id}.toml").write_text(text, encoding="utf-8")
+
+
+def test_a_requirement_of_zero_shows_its_slack_in_seconds(tmp_path):
+    # the controller records no t_setup/t_hold (taken as 0): a margin relative to 0
+    # means nothing, so the margin is the slack in seconds, shown in the unit
+    from pinlib.core.quantity import format_si
+    from pinlib.model.result import margin_text
+
+    _ctrl_with(tmp_path, "t-ctrl-untimed", "")
+    d, bus = write_design(tmp_path, controller="t-ctrl-untimed", extra_library=tmp_path)
+    res = evaluate_bus(bus, d)
+    for cid in ("cipo-setup", "cipo-hold"):
+        c = next(c for c in res.checks if c.id == cid)
+        assert c.limit == 0.0 and c.value > 0
+        assert c.margin_unit == "s"
+        assert c.margin == c.value   # derived: slack = available - 0
+        assert c.status == "pass"
+        assert margin_text(c) == "+" + format_si(c.value, "s")  # not "—"
+        assert c.to_json()["margin_unit"] == "s"
+    # a requirement the part records keeps its relative margin
+    c = next(c for c in res.checks if c.id == "copi-setup")
+    assert c.margin_unit is None and "margin_unit" not in c.to_json()
+    assert c.margin == pytest.approx((c.value - c.limit) / c.limit, rel=1e-12)
+
+
+def test_negative_slack_fails_a_recorded_zero_and_warns_an_unrecorded_one(tmp_path):
+    # at 80 MHz the CIPO round trip of the test parts (invented test data) overruns
+    # half the period: the slack is negative.  A t_setup the part records as 0 ns is a
+    # datasheet limit and fails; one it does not record has no published limit behind
+    # the 0 taken for it, so it warns (a check fails only against a published limit)
+    _ctrl_with(tmp_path, "t-ctrl-untimed", "")
+    _ctrl_with(tmp_path, "t-ctrl-zero", 't_setup = "0 ns"\nt_hold = "0 ns"\n')
+    got = {}
+    for part in ("t-ctrl-untimed", "t-ctrl-zero"):
+        d, bus = write_design(tmp_path, controller=part, extra_library=tmp_path,
+                              clock="80 MHz", name=f"{part}-d.toml")
+        got[part] = next(c for c in evaluate_bus(bus, d).checks if c.id == "cipo-setup")
+    for c in got.values():
+        assert c.value < 0 and c.margin == c.value and c.margin_unit == "s"
+    assert got["t-ctrl-zero"].status == "fail"
+    assert got["t-ctrl-untimed"].status == "warn"
+    assert "not a failure" in got["t-ctrl-untimed"].message
+    assert "t_setup" in got["t-ctrl-untimed"].advice

@@ -105,6 +105,8 @@ CHECKS: dict[str, str] = {
     "scl-frequency": "SCL frequency",
     "edge-time": "Edge time",
     "line-delay": "Line delay ≤ clock period",
+    # its value and limit are counts (unit ""): the label says of what
+    "ringing": "Ringing re-crossings",
     "bridge-gate-drive": "Translator gate drive",
     "crosstalk-low": "Crosstalk held low",
     "crosstalk-high": "Crosstalk held high",

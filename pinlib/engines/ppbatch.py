@@ -182,7 +182,8 @@ def build(bus: Bus, design: Design, factors: dict[tuple, np.ndarray], n: int, *,
         moving = grid.interpolated([nm["name"] for nm in names])
         close = np.zeros(n, dtype=bool)
         if moving.any():
-            close = np.any(np.abs(margin[:, moving]) < band, axis=1)
+            scale = grid.margin_scales([nm["name"] for nm in names])[moving]
+            close = np.any(np.abs(margin[:, moving]) / scale < band, axis=1)
         todo = ~inside | rough | close
         why = {"outside": int(np.count_nonzero(~inside)),
                "rough": int(np.count_nonzero(rough & inside)),

@@ -50,7 +50,7 @@ from pinlib.engines.spi.analysis import SpiAnalysis, line_flights, line_setup, t
 from pinlib.engines.spi.budget import Term
 from pinlib.engines.spi.evaluate import MARGIN_FIGURES, lowest_margins, term_check
 from pinlib.model.design import Bus, Design
-from pinlib.model.result import BusResult, LineResult, min_margin
+from pinlib.model.result import BusResult, LineResult
 
 __all__ = ["corner_rows"]
 
@@ -151,7 +151,7 @@ class _Corners:
         j0 = self.n_line
         for q, t in enumerate(terms):
             avail = np.asarray(t.available(1.0 / clock), dtype=float)
-            mg = min_margin(np.where(np.isfinite(avail), avail, 0.0), t.required)
+            mg = t.check_margin(np.where(np.isfinite(avail), avail, 0.0))
             # no finite available time: the check fails without a margin (rank_margin)
             mg = np.where(np.isfinite(avail) & ~np.isnan(mg), mg, -np.inf)
             rank[:, j0 + q], present[:, j0 + q] = mg, True

@@ -18,9 +18,14 @@ bus's timing checks are sums of flights from several lines
    taken as it is.
 3. **Bus.**  The timing checks are computed from the interpolated flights by the
    engine's own budget (``budget_terms``, which takes arrays) and the margin rule of
-   :func:`pinlib.model.result.check_min`; statuses come from the margins by the engine's
-   rule (:func:`pinlib.model.result.status_codes`).  A device's ``supply-range`` check
-   is the engine's rule at the board's own rail (nothing interpolated).
+   its checks (:meth:`pinlib.engines.spi.budget.Term.check_margin`: relative to the
+   requirement, or the slack in seconds where the requirement is 0); statuses come from
+   the margins by the engine's rule (:func:`pinlib.model.result.status_codes`; a slack
+   in seconds passes from 0 up, and warns below it where the 0 was taken for a
+   requirement the part does not record).  A slack in seconds is compared with the
+   table's error in units of :func:`_flight_scale` (:meth:`LineTable.margin_scales`).
+   A device's ``supply-range`` check is the engine's rule at the board's own rail
+   (nothing interpolated).
 4. **Rough cells.**  A line's margin or flight can jump or bend across a cell (on a
    routed line a stub's receiver sees a stepped edge, whose 10-90 % time jumps as a
    step's plateau crosses 90 %, and whose first crossing of a threshold jumps from one
@@ -64,7 +69,7 @@ from pinlib.engines.ppvariant import number_or_nan as _num
 from pinlib.engines.pushline import Flight
 from pinlib.engines.tablegrid import interpolate, rough_spans, stencil
 from pinlib.model.design import Bus, Design
-from pinlib.model.result import STATUS_CODES, min_margin, status_codes
+from pinlib.model.result import STATUS_CODES, status_codes
 
 __all__ = ["MARGIN_TOL", "VERIFY", "Axis", "LineTable", "Refusal", "axes_of", "tabulate"]
 
@@ -258,12 +263,29 @@ class LineTable:
                 t = terms[k]
                 value[j] = t.a * period + np.asarray(t.b, dtype=float)
                 limit[j] = t.required
-                margin[j] = min_margin(value[j], t.required)
-                by_margin.append(j)
+                margin[j] = t.check_margin(value[j])   # the engine's term_check
+                if t.margin_unit is None:
+                    by_margin.append(j)
+                else:  # a slack in seconds passes from 0 up; one taken as 0 warns below
+                    status[j] = np.minimum(status_codes(margin[j], 0.0),
+                                           2 if t.recorded else 1)
         if by_margin:
             rows = np.array(by_margin)
             status[rows] = status_codes(margin[rows], self._warn)
         return {"margin": margin.T, "value": value.T, "limit": limit.T, "status": status.T}
+
+    def margin_scales(self, order: list[str]) -> np.ndarray:
+        """What one unit of margin is, per check named in ``order``, for comparing margins
+        with the table's error (:attr:`max_error`): 1 for a margin relative to its limit,
+        :func:`_flight_scale` seconds for a timing term's slack in seconds (a requirement
+        of 0, :attr:`pinlib.engines.spi.budget.Term.margin_unit`)."""
+        where = {nm["name"]: j for j, nm in enumerate(self.names)}
+        out = np.ones(len(order))
+        for i, name in enumerate(order):
+            plan = self._checks[where[name]] if name in where else ("const",)
+            if plan[0] == "term" and self._analysis.terms[plan[1]].margin_unit is not None:
+                out[i] = _flight_scale(self)
+        return out
 
     def interpolated(self, order: list[str]) -> np.ndarray:
         """Which of the checks named in ``order`` have interpolated margins (the others
@@ -494,6 +516,7 @@ def _verify(table: LineTable, bus: Bus, design: Design, resistors: dict,
     else:
         raise ppnodes.Refused("the table declines almost every board")
     got = table.evaluate(draws, VERIFY)
+    scales = table.margin_scales([nm["name"] for nm in table.names])
     worst = 0.0
     for b in range(VERIFY):
         at = {k: float(v[b]) for k, v in draws.items()}
@@ -510,7 +533,7 @@ def _verify(table: LineTable, bus: Bus, design: Design, resistors: dict,
                 continue
             mine, theirs = got["margin"][b, j], _num(c.margin)
             if math.isfinite(theirs) or math.isfinite(mine):
-                diff = abs(mine - theirs)
+                diff = abs(mine - theirs) / scales[j]
                 if not diff <= MARGIN_TOL:
                     raise ppnodes.Refused(f"{table.names[j]['name']}: interpolated margin "
                                    f"{mine:.4g} against the engine's {theirs:.4g} at a "

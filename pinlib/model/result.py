@@ -100,7 +100,7 @@ class Check:
     fix: str | None = None      # what would help, as the check's rule states it (see advice)
     details: dict = field(default_factory=dict)
     #: the unit of an absolute margin (value minus limit, or limit minus value) where a
-    #: margin relative to the limit means nothing (a limit of 0 V); None: relative
+    #: margin relative to the limit means nothing (a limit of 0 V or 0 s); None: relative
     margin_unit: str | None = None
     reason: str | None = None   # why the value does not exist (value and margin None)
 

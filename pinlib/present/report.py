@@ -121,14 +121,19 @@ def _open_drain(group) -> str:
 def _worst(bus: BusResult) -> tuple[Check | None, str | None]:
     """The check of the bus with the worst status and, among those, the smallest
     relative margin, and its line's signal (a rule of thumb's warning far below its
-    limit is not named beside a check that fails)."""
-    best, where, key = None, None, (1, math.inf)
+    limit is not named beside a check that fails).  A margin in a unit (``margin_unit``:
+    a gate overdrive in volts, an SPI slack in seconds) is never ranked against
+    fractions: it is the worst only where no check of its status has a relative margin
+    (the order of the candidates' worst margin), so a bus that warns on such a check
+    alone names it, not a passing check of a smaller fraction."""
+    best, where, key = None, None, None
     for _, signal, c in bus.all_checks():
-        if c.margin is None or c.margin_unit is not None:
+        if c.margin is None:
             continue
         m = float(c.margin)
-        k = (-STATUSES.index(c.status) if c.status in STATUSES else 0, m)
-        if math.isfinite(m) and k < key:
+        k = (-STATUSES.index(c.status) if c.status in STATUSES else 0,
+             c.margin_unit is not None, m)
+        if math.isfinite(m) and (key is None or k < key):
             best, where, key = c, signal, k
     return best, where
 

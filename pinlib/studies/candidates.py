@@ -122,7 +122,7 @@ class Candidate:
         :data:`FIXED_CHECKS`); a margin that cannot be computed counts as −inf. [1]
     worst_check : dict or None
         Where that margin is: ``bus``, ``segment``, ``line``, ``id``, ``subject``; and
-        ``margin_unit`` (``"V"``) where the margin is in that unit, not a fraction of
+        ``margin_unit`` (``"V"``, ``"s"``) where the margin is in that unit, not a fraction of
         the limit (such a margin is shown, never ranked against fractions). [1]
     figures : dict
         By bus id: the figures that matter (see :data:`FIGURES`), SI with units. [SI]

@@ -68,7 +68,10 @@ Limits: a signal the design does not route is not connected (no CIPO route: no r
 budget); the design gives one CS route per bus, so every peripheral's CS pin loads it
 (separate chip selects would each carry one); CS is taken as active low; the
 controller's own ``t_valid``, ``t_setup`` and ``t_hold`` are taken as 0 when its class
-does not record them (a note says so).
+does not record them (a note says so).  A check against a requirement of 0 has the
+slack in seconds as its margin (``Term.check_margin``); against a 0 taken for a
+requirement the part does not record, a negative slack warns, since no published limit
+stands behind it.
 
 References
 ----------

@@ -103,6 +103,8 @@ class Term:
         Where the requirement comes from. [1]
     parts : dict
         The terms that make up ``b`` and ``required``, for the check details. [s]
+    recorded : bool
+        Whether the part records the requirement (False: taken as 0). [1]
     """
 
     id: str
@@ -112,6 +114,26 @@ class Term:
     required: float
     source: str
     parts: dict
+    recorded: bool = True
+
+    @property
+    def margin_unit(self) -> str | None:
+        """``"s"`` where the check's margin is the slack in seconds (a requirement of 0,
+        recorded or taken: a fraction of it means nothing), None where it is relative to
+        the requirement (:attr:`pinlib.model.result.Check.margin_unit`). [1]"""
+        return "s" if float(self.required) == 0.0 else None
+
+    def check_margin(self, available):
+        """The check's margin of an available time: relative to the requirement
+        (:func:`pinlib.model.result.min_margin`), or the slack ``available - required``
+        in seconds where :attr:`margin_unit` is ``"s"``; elementwise over arrays.  The
+        one rule of the engine's check, the corner search and the Monte Carlo
+        tables. [1] or [s]"""
+        from pinlib.model.result import min_margin
+
+        if self.margin_unit is None:
+            return min_margin(available, self.required)
+        return np.asarray(available, dtype=float) - float(self.required)
 
     def available(self, period):
         """Available time at a clock period. [s]"""
@@ -171,25 +193,28 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 "copi-setup", p.ref, 0.5, s_sample.early - tv - p.copi.late,
                 _or0(p.t_setup), src.get("t_setup", ""),
                 {"half_period": "T/2", "sclk_early": s_sample.early, "t_valid_controller": tv,
-                 "copi_late": p.copi.late, "t_setup": _or0(p.t_setup)}))
+                 "copi_late": p.copi.late, "t_setup": _or0(p.t_setup)},
+                p.t_setup is not None))
             terms.append(Term(
                 "copi-hold", p.ref, 0.5, p.copi.early - s_sample.late,
                 _or0(p.t_hold), src.get("t_hold", ""),
                 {"half_period": "T/2", "copi_early": p.copi.early, "sclk_late": s_sample.late,
-                 "t_hold": _or0(p.t_hold)}))
+                 "t_hold": _or0(p.t_hold)}, p.t_hold is not None))
         if p.cipo is not None and p.t_valid is not None:
             terms.append(Term(
                 "cipo-setup", p.ref, 0.5, -(s_launch.late + p.t_valid + p.cipo.late + t_path),
                 _or0(controller.t_setup), c_src.get("t_setup", ""),
                 {"half_period": "T/2", "sclk_late": s_launch.late, "t_valid": p.t_valid,
                  "cipo_late": p.cipo.late, "bridges_round_trip": t_path,
-                 "t_setup_controller": _or0(controller.t_setup)}))
+                 "t_setup_controller": _or0(controller.t_setup)},
+                controller.t_setup is not None))
         if p.cipo is not None:
             terms.append(Term(
                 "cipo-hold", p.ref, 0.5, s_launch.early + p.cipo.early,
                 _or0(controller.t_hold), c_src.get("t_hold", ""),
                 {"half_period": "T/2", "sclk_early": s_launch.early,
-                 "cipo_early": p.cipo.early, "t_hold_controller": _or0(controller.t_hold)}))
+                 "cipo_early": p.cipo.early, "t_hold_controller": _or0(controller.t_hold)},
+                controller.t_hold is not None))
         if p.cs is not None:
             if controller.t_cs_lead is None:
                 a, lead = 0.5, 0.0
@@ -201,7 +226,7 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 "cs-setup", p.ref, a, lead + s_first.early - p.cs.late,
                 _or0(p.t_cs_setup), src.get("t_cs_setup", ""),
                 {"lead": lead_text, "sclk_early": s_first.early, "cs_late": p.cs.late,
-                 "t_cs_setup": _or0(p.t_cs_setup)}))
+                 "t_cs_setup": _or0(p.t_cs_setup)}, p.t_cs_setup is not None))
             if mode.cpha == 0 and p.cipo is not None and p.t_cs_valid is not None:
                 # CPHA 0: the first bit is driven when CS asserts and sampled on the first
                 # edge, ``lead`` after CS leaves the controller; CS crosses each bridge
@@ -212,5 +237,6 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                     _or0(controller.t_setup), c_src.get("t_setup", ""),
                     {"lead": lead_text, "cs_late": p.cs.late, "t_cs_valid": p.t_cs_valid,
                      "cipo_late": p.cipo.late, "bridges_round_trip": t_path,
-                     "t_setup_controller": _or0(controller.t_setup)}))
+                     "t_setup_controller": _or0(controller.t_setup)},
+                    controller.t_setup is not None))
     return terms

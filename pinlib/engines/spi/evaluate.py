@@ -151,7 +151,29 @@ def term_check(t: Term, clock: float, warn: float, mode: int) -> Check:
                      subject=t.subject, details=details, reason=reason,
                      fix="make the driver's high level reach the receiver's VIH (a "
                          "level translator, or parts on one rail)")
-    return check_min(
-        t.id, avail, t.required, "s", source,
-        head + body.format(avail=_fmt(avail, "s"), req=_fmt(t.required, "s"))
-        + f" at {_fmt(clock, 'Hz')}", warn_margin=warn, subject=t.subject, details=details)
+    message = (head + body.format(avail=_fmt(avail, "s"), req=_fmt(t.required, "s"))
+               + f" at {_fmt(clock, 'Hz')}")
+    if t.margin_unit is None:
+        return check_min(t.id, avail, t.required, "s", source, message, warn_margin=warn,
+                         subject=t.subject, details=details)
+    # A requirement of 0 (recorded, or taken for one the part does not record): a
+    # fraction of it means nothing, so the margin is the slack in seconds, which passes
+    # from 0 up (no fraction of the limit to warn within) and fails below it
+    slack = float(t.check_margin(avail))
+    status = "pass" if slack >= 0 else "fail"
+    fix = None
+    if status == "fail" and not t.recorded:
+        # no published limit to fail against: a part may well accept less than 0
+        field = next(k for k in _REQUIRED_FIELDS if k in t.parts)
+        status = "warn"
+        fix = (f"record the part's {_REQUIRED_FIELDS[field]} from its datasheet, or "
+               "give the path more time")
+        message += (f"; {_fmt(-slack, 's')} short of 0, which is taken for a requirement "
+                    "the part does not record: a warning, not a failure")
+    return Check(t.id, status, avail, t.required, "s", slack, source, message,
+                 subject=t.subject, details=details, margin_unit=t.margin_unit, fix=fix)
+
+
+#: The requirement of each term, by the key of its details, as the part records it.
+_REQUIRED_FIELDS = {"t_setup": "t_setup", "t_hold": "t_hold", "t_cs_setup": "t_cs_setup",
+                    "t_setup_controller": "t_setup", "t_hold_controller": "t_hold"}

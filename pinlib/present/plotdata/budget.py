@@ -8,8 +8,8 @@ from dataclasses import field
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.valueclass import value_class
+from pinlib.engines.spi.evaluate import term_check
 from pinlib.model.design import Bus, Design
-from pinlib.model.result import check_min
 from pinlib.present.plotdata.common import _require_protocol, workings
 
 
@@ -123,7 +123,7 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
     its terms (:data:`BUDGET_COMPONENTS`) against the available ``a T`` (half a
     period), or against the controller's stated CS lead for ``cs-setup``; the margin
     is the engine's ``Term.margin(T)``.  The status is the engine's own check
-    (:func:`pinlib.model.result.check_min` at the design's warning margin).
+    (:func:`pinlib.engines.spi.evaluate.term_check` at the design's warning margin).
     """
     _require_protocol(bus, ("spi",), "a timing budget")
     checks = _corner_checks(analysis)
@@ -160,8 +160,7 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
                                       "pinlib.engines.spi.budget_terms")
         avail[path] = available
         margins[path] = margin
-        chk = check_min(term.id, float(term.available(period)), term.required, "s",
-                        term.source, "", warn_margin=design.warn_margin)
+        chk = term_check(term, clock, design.warn_margin, analysis.mode.mode)
         status[path] = chk.status
         sources[path] = term.source or "not recorded by the part: taken as 0"
         c = checks.get((term.id, term.subject))

@@ -13,7 +13,7 @@ from pinlib.core.errors import InputError
 from pinlib.core.labels import check_label, figure_label, shown_figures
 from pinlib.core.quantity import Threshold, format_si, format_threshold
 from pinlib.core.valueclass import value_class
-from pinlib.model.result import percent_text
+from pinlib.model.result import signed_margin_text
 from pinlib.studies.compare.figures import (
     DEFAULT_THRESHOLD,
     _checks,
@@ -57,6 +57,10 @@ class StatusChange:
     source: str = ""
     message: str = ""
     old_subject: str | None = None  # when the worst case moved to another device
+    #: the unit of each side's margin where it is absolute (``Check.margin_unit``: a
+    #: gate overdrive in V, an SPI timing slack in s); None where it is relative
+    old_margin_unit: str | None = None
+    new_margin_unit: str | None = None
 
     def format(self) -> str:
         where = f"{self.path} {check_label(str(self.check))}" + (
@@ -91,13 +95,18 @@ class StatusChange:
         return ", ".join(vals)
 
     def to_json(self) -> dict:
-        return {"path": self.path, "check": self.check, "subject": self.subject,
-                "old": self.old, "new": self.new, "unit": self.unit,
-                "old_value": self.old_value, "new_value": self.new_value,
-                "old_limit": self.old_limit, "new_limit": self.new_limit,
-                "old_margin": self.old_margin, "new_margin": self.new_margin,
-                "source": self.source, "message": self.message,
-                "old_subject": self.old_subject}
+        out = {"path": self.path, "check": self.check, "subject": self.subject,
+               "old": self.old, "new": self.new, "unit": self.unit,
+               "old_value": self.old_value, "new_value": self.new_value,
+               "old_limit": self.old_limit, "new_limit": self.new_limit,
+               "old_margin": self.old_margin, "new_margin": self.new_margin,
+               "source": self.source, "message": self.message,
+               "old_subject": self.old_subject}
+        # only where a margin is absolute, as on a check
+        for key in ("old_margin_unit", "new_margin_unit"):
+            if getattr(self, key) is not None:
+                out[key] = getattr(self, key)
+        return out
 
 
 @value_class
@@ -113,8 +122,9 @@ class MarginChange:
         where = f"{c.path} {check_label(str(c.check))}" + (f" {c.subject}" if c.subject else "")
         if c.old_subject:
             where += f" (was {c.old_subject})"
-        return (f"{where}: margin {percent_text(c.old_margin)} {_ARROW} "
-                f"{percent_text(c.new_margin)} ({c.values_text()})")
+        return (f"{where}: margin {signed_margin_text(c.old_margin, c.old_margin_unit)} "
+                f"{_ARROW} {signed_margin_text(c.new_margin, c.new_margin_unit)} "
+                f"({c.values_text()})")
 
     def to_json(self) -> dict:
         """A status change's keys, with the one ``status`` in place of ``old``/``new``."""
@@ -130,10 +140,18 @@ class MarginChange:
 def _margin_moved(o: dict, n: dict, threshold: float) -> bool:
     """Both margins numbers and apart by more than ``threshold`` in points (a margin of
     +75 % that fell to +0 %) and as a fraction of the old margin (a margin of +621 %
-    that fell to +613 % moved 8 points, but only 1.3 % of itself: not listed)."""
+    that fell to +613 % moved 8 points, but only 1.3 % of itself: not listed).  A margin
+    in a unit (``margin_unit``: volts, seconds) has no points: it moved when apart by
+    more than ``threshold`` of itself, as a figure; one that changed its kind (a
+    requirement of 0 that a part now records) moved."""
     a, b = o.get("margin"), n.get("margin")
     if not (_is_number(a) and _is_number(b) and math.isfinite(a) and math.isfinite(b)):
         return False
+    unit = o.get("margin_unit")
+    if unit != n.get("margin_unit"):
+        return True
+    if unit is not None:
+        return abs(b - a) > threshold * abs(a)
     return abs(b - a) > threshold and abs(b - a) > threshold * abs(a)
 
 
@@ -551,7 +569,8 @@ def compare(old_snapshot: dict, new_snapshot: dict, *, threshold: float = DEFAUL
             (o or {}).get("limit"), (n or {}).get("limit"),
             (o or {}).get("margin"), (n or {}).get("margin"),
             ref.get("source", ""), ref.get("message", ""),
-            old_subject if o and n and old_subject != ref.get("subject") else None)
+            old_subject if o and n and old_subject != ref.get("subject") else None,
+            (o or {}).get("margin_unit"), (n or {}).get("margin_unit"))
         if os_ == ns_:
             cl.margin_changes.append(MarginChange(change))
         else:
