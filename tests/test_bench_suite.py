@@ -36,6 +36,8 @@ def test_ratio_of_rates_is_speed_against_the_baseline():
     r = Result("mc", 1000.0, "engine board by board", 10.0, unit="boards/s")
     assert r.ratio == pytest.approx(100.0)  # derived: 1000 / 10, above 1 = faster
     assert "baseline: engine board by board = 10 boards/s" in r.line()
+    # a slow baseline keeps its figures (derived: 1 / 0.311 s = 3.215 boards/s)
+    assert "= 3.22 boards/s" in Result("mc", 161.0, "e", 1 / 0.311, unit="boards/s").line()
 
 
 def test_a_line_without_baseline_says_why_and_prints_no_ratio():

@@ -136,7 +136,7 @@ class Result:
     def shown(self, x: float) -> str:
         if self.unit == "s":
             return format_seconds(x)
-        return f"{x:,.0f} {self.unit}"
+        return f"{x:,.0f} {self.unit}" if x >= 100 else f"{x:.3g} {self.unit}"
 
     def ratio_words(self) -> str:
         """The ratio as printed: "3.2x faster than the baseline" (or "0.5x as fast")."""
