@@ -87,10 +87,12 @@ def test_readme_table_names_the_baseline_or_its_absence():
     rows = bench_main._table([
         Result("a", 1.0, "the loop", 4.0, target="ratio >= 2x", passed=True),
         Result("b", 2.0, no_baseline="a part of a's work"),
+        Result("c", 2.0, no_baseline="none like it", extra=["1 s of it parsing"]),
     ], {"platform": "p", "cpu": "c", "cpus": "2", "python": "3", "numpy": "2"})
     assert "| a | 1 s | the loop: 4 s | 4× faster than the baseline | ratio >= 2x (met) |" \
         in rows
     assert "| b | 2 s | none: a part of a's work | — | — |" in rows
+    assert "| c | 2 s | none: none like it | 1 s of it parsing | — |" in rows
 
 
 # ------------------------------------------------------------- scaling baselines

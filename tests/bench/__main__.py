@@ -33,11 +33,10 @@ def _table(results: list[Result], info: dict[str, str]) -> str:
         verdict = "" if r.passed is None else (" (met)" if r.passed else " (missed)")
         extra = "; ".join(r.extra)
         if r.baseline is None:
-            baseline, ratio = f"none: {r.no_baseline}", "—"
+            baseline, ratio = f"none: {r.no_baseline}", extra or "—"
         else:
             baseline = f"{r.baseline_name}: {r.shown(r.baseline)}"
-            ratio = r.ratio_words().replace("x ", "× ", 1)
-        ratio += f"; {extra}" if extra else ""
+            ratio = r.ratio_words().replace("x ", "× ", 1) + (f"; {extra}" if extra else "")
         rows.append(f"| {r.name} | {r.shown(r.value)} | {baseline} | {ratio} | "
                     f"{r.target or '—'}{verdict} |")
     when = _dt.date.today().isoformat()
