@@ -15,7 +15,7 @@ import sys
 import traceback
 from pathlib import Path
 
-from tests.bench.common import Result, format_ratio, machine
+from tests.bench.common import Result, machine
 
 MODULES = ["waveform", "tree", "crosstalk", "candidates", "montecarlo", "opendrain",
            "library", "cli", "report", "design", "many", "scaling",
@@ -32,18 +32,25 @@ def _table(results: list[Result], info: dict[str, str]) -> str:
             continue
         verdict = "" if r.passed is None else (" (met)" if r.passed else " (missed)")
         extra = "; ".join(r.extra)
-        ratio = f"{format_ratio(r.ratio)}× {r.ratio_text}" + (f"; {extra}" if extra else "")
-        rows.append(f"| {r.name} | {r.shown(r.value)} | {r.baseline_name}: "
-                    f"{r.shown(r.baseline)} | {ratio} | {r.target or '—'}{verdict} |")
+        if r.baseline is None:
+            baseline, ratio = f"none: {r.no_baseline}", extra or "—"
+        else:
+            baseline = f"{r.baseline_name}: {r.shown(r.baseline)}"
+            ratio = r.ratio_words().replace("x ", "× ", 1) + (f"; {extra}" if extra else "")
+        rows.append(f"| {r.name} | {r.shown(r.value)} | {baseline} | {ratio} | "
+                    f"{r.target or '—'}{verdict} |")
     when = _dt.date.today().isoformat()
     return "\n".join([
         "## Performance",
         "",
         "Measured by `make bench` (`python -m tests.bench`, the benchmarks in `tests/bench/`,",
         "outside the unit tests). Each figure is the median of repeated runs; each ratio is",
-        "against a baseline measured in the same run, so it carries over to other machines",
-        "better than the times do (on this shared two-CPU machine the times of one benchmark",
-        "varied by up to half from run to run).",
+        "the speed against the baseline named beside it (the same work done another way, or",
+        "linear growth from a smaller input), measured in the same run, so above 1 means",
+        "faster than that baseline and it carries over to other machines better than the",
+        "times do (on this shared two-CPU machine the times of one benchmark varied by up to",
+        "half from run to run). A benchmark with no like-for-like baseline gives its time",
+        "alone and says why.",
         "",
         *rows,
         "",

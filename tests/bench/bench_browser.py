@@ -10,10 +10,17 @@ messages back and the browser's layout of the new SVGs.  Printed beside it: the 
 the first chart that changes, and to the page's last change (tables and notes a widget
 redraws after its charts, such as workbook 05's candidates ranking).
 
-The baseline is the same control set in this process on the widget the workbook builds
-(its cells run up to the one that displays ``.widget``): what the kernel does for that
-change, without the browser, the messages or the page.  The ratio says how much the
-browser and the round trip add.  No target: the 150 ms redraw target is the kernel's
+No baseline: nothing else does this work, and the kernel's redraw alone is a part of it,
+not the same work done another way. (A ratio of the two once compared the time to the
+last chart with the kernel's whole redraw, which goes on after the charts: tables,
+notes, workbook 05's ranking; so it could fall below 1 where the kernel does much after
+its charts: on 2026-12-04, workbook 05's last chart 153 ms, its kernel's redraw 134 ms,
+its page done 309 ms.) So the line prints the time to the last chart that changes;
+beside it, for information, the kernel's whole redraw and the page's last change (the
+same work end to end) and the difference between them, what the browser and the round
+trip add: the kernel's redraw is the same control set in this process on the widget the
+workbook builds (its cells run up to the one that displays ``.widget``), without the
+browser, the messages or the page. No target: the 150 ms redraw target is the kernel's
 (``python -m tests.bench --only widgets``).
 """
 
@@ -161,16 +168,22 @@ def _browser_times(repeats: int) -> dict[str, list[float]]:
     return out
 
 
+def overhead(done: float, kernel: float) -> str:
+    """The same redraw end to end in the page and in the kernel alone, and what the
+    browser and the round trip add (the difference). [s, s]"""
+    return (f"page done {done * 1e3:.0f} ms against the kernel's whole redraw alone "
+            f"{kernel * 1e3:.0f} ms: the browser adds {(done - kernel) * 1e3:+.0f} ms")
+
+
 def run(repeats: int = 7, quick: bool = False) -> list[Result]:
     from tests.browser import chromium_path
 
     if chromium_path() is None:
-        return [Result("browser click-to-chart", 0, "", 0, 0, "",
-                       todo="chromium is not installed")]
+        return [Result("browser click-to-chart", 0, todo="chromium is not installed")]
     try:
         import playwright.sync_api  # noqa: F401
     except ImportError:
-        return [Result("browser click-to-chart", 0, "", 0, 0, "",
+        return [Result("browser click-to-chart", 0,
                        todo="the playwright package is not installed (the test extra)")]
     t0 = time.perf_counter()
     browser = _browser_times(repeats)
@@ -185,11 +198,11 @@ def run(repeats: int = 7, quick: bool = False) -> list[Result]:
             done = statistics.median(t[2] for t in browser[name])
             shown = statistics.median(last)
             results.append(Result(
-                f"browser click-to-chart: {name[:2]} {label}", shown, "kernel redraw",
-                kernel, shown / kernel, "of the kernel's redraw",
+                f"browser click-to-chart: {name[:2]} {label}", shown,
+                no_baseline="the kernel's redraw alone is a part of this work",
                 extra=[f"{options[0]} <-> {options[1]}",
                        f"first chart {first * 1e3:.0f} ms",
-                       f"page done {done * 1e3:.0f} ms",
-                       f"slowest {max(last) * 1e3:.0f} ms of {len(last)}"]))
+                       f"slowest {max(last) * 1e3:.0f} ms of {len(last)}",
+                       overhead(done, kernel)]))
     results[-1].extra.append(f"whole benchmark {spent:.0f} s with JupyterLab and Chromium")
     return results

@@ -118,7 +118,7 @@ def run(repeats: int = 3, quick: bool = False) -> list[Result]:
     methods = sorted({c.method for c in fast.candidates})
     spi = _spi(repeats, quick)
     return [spi, Result(f"candidate ranking: {generated:,} parts", t_fast,
-                        "per-candidate loop", t_slow, t_slow / t_fast, "faster than the loop",
+                        "the same ranking by a per-candidate loop", t_slow,
                         extra=[f"{len(fast.candidates):,} ranked, rankings equal",
                                "method " + "/".join(methods)])]
 
@@ -141,8 +141,9 @@ def _spi(repeats: int, quick: bool) -> Result:
         raise RuntimeError("the batched SPI ranking differs from the per-candidate one")
     generated = sum(c.part.startswith("gen-spi-") for c in fast.candidates)
     ratio = t_slow / t_fast
-    return Result(f"SPI candidate ranking: {generated:,} parts", t_fast, "one at a time",
-                  t_slow, ratio, "faster than one at a time", target=f">= {SPI_TARGET:g}x",
+    return Result(f"SPI candidate ranking: {generated:,} parts", t_fast,
+                  "the same ranking one candidate at a time", t_slow,
+                  target=f"ratio >= {SPI_TARGET:g}x",
                   passed=ratio >= SPI_TARGET,
                   extra=[f"{len(fast.candidates):,} ranked, rankings equal",
                          f"{t_fast / len(fast.candidates) * 1e3:.1f} ms a candidate batched, "

@@ -2,8 +2,10 @@
 
 This is what a user waits for at the prompt: interpreter start, imports (pandas,
 altair and the widgets must stay out of this path), library load, every engine and the
-text report.  The baseline is an interpreter that imports numpy, in the same run (the
-target is at most 3x that); the bare interpreter start is printed beside it.  The
+text report.  No baseline: nothing else does the command's work, so the line prints
+its time; its target is at most 3 times an interpreter that imports numpy, timed in
+the same run (printed in ms beside the target, with the multiple measured); the bare
+interpreter start is printed beside it.  The
 command runs as ``python -m pinlib`` from this checkout (working folder and
 ``PYTHONPATH``), so the code measured is the code under test, not an installed copy.
 The command keeps its driver fits between runs (:mod:`pinlib.engines.fitstore`): the
@@ -14,8 +16,8 @@ The command runs numpy's BLAS on one thread (:func:`pinlib.cli.startup.one_blas_
 while a plain ``python -c "import numpy"`` starts a pool of BLAS threads, which on a
 busy machine can take as long as the rest of the import (measured here under load:
 120-140 ms with the pool, 70 ms on one thread).  So the baseline is timed both ways, in
-the same turns, and the verdict takes the larger of the two ratios: a loaded machine
-cannot make the target pass by slowing the baseline alone.
+the same turns, and the target is set by the faster of the two: a loaded machine
+cannot make the target pass by slowing that yardstick alone.
 """
 
 from __future__ import annotations
@@ -85,18 +87,17 @@ def run(repeats: int = 7, quick: bool = False) -> list[Result]:
             lambda: _run(cmd, "off"),
         ], repeats)
     heavy = heavy_imports()
-    # the stricter of the two baselines decides (see the module)
-    t_base, how = max((t_numpy, "its BLAS pool"), (t_one, "BLAS on one thread, as pinlib"),
-                      key=lambda b: t_check / b[0])
-    ratio = t_check / t_base
+    # the faster of the two yardsticks sets the budget (see the module)
+    t_base, how = min((t_numpy, "its BLAS pool"), (t_one, "BLAS on one thread, as pinlib"))
+    multiple = t_check / t_base
     other = t_one if t_base is t_numpy else t_numpy
     return [Result("pinlib check demo (fresh process)", t_check,
-                   f"python -c 'import numpy' ({how})", t_base, ratio,
-                   "of an interpreter importing numpy",
-                   target=f"<= {TARGET_RATIO:g}x", passed=ratio <= TARGET_RATIO,
-                   extra=[f"{t_check / other:.3g}x of the other baseline "
-                          f"({other * 1e3:.0f} ms)",
+                   no_baseline="nothing else does the command's work",
+                   target=f"time <= {TARGET_RATIO:g} x python -c 'import numpy' "
+                          f"({how}) = {TARGET_RATIO * t_base * 1e3:.0f} ms",
+                   passed=multiple <= TARGET_RATIO,
+                   extra=[f"{multiple:.3g}x that import; {t_check / other:.3g}x the "
+                          f"other ({other * 1e3:.0f} ms)",
                           f"fits from the store; {t_cold * 1e3:.0f} ms computing them",
-                          f"bare interpreter {t_bare * 1e3:.0f} ms "
-                          f"({t_check / t_bare:.3g}x)",
+                          f"bare interpreter {t_bare * 1e3:.0f} ms",
                           "heavy imports: " + (", ".join(heavy) if heavy else "none")])]

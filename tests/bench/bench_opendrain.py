@@ -9,12 +9,16 @@ through pydantic, no longer a dependency), so both are measured in units of
 pinlib code in it, timed in turn with the subject in the same process:
 
 - ``evaluate_bus`` on every open-drain bus of the demo, the translator-and-cable test
-  design and the two what-if golden designs, against ``reference_work``: that ratio
-  against :data:`SCALAR_BASELINE`, the same ratio of the scalar engine; at or below it
-  meets the target;
-- ``collect`` alone (the gathering every path pays) and the array path alone
-  (``collect``, then ``build`` at the engine's corners on it) against ``evaluate_bus``,
-  for information: what the wording costs on top.
+  design and the two what-if golden designs.  Its baseline is the scalar engine on the
+  same buses, its time taken as :data:`SCALAR_BASELINE` times ``reference_work``'s time
+  in this run (the ratio of the two measured in turn for the scalar engine, recorded):
+  the ratio is that time over ``evaluate_bus``'s, so 1 or more (no slower than the
+  scalar engine) meets the target;
+- the array path alone (``collect``, then ``build`` at the engine's corners on it) and
+  ``collect`` alone (the gathering every path pays), for information.  They are parts
+  of ``evaluate_bus``'s work, not the same work another way, so that line has no
+  baseline: it prints the time and the share of ``evaluate_bus``'s time (the rest is
+  the wording).
 """
 
 from __future__ import annotations
@@ -25,7 +29,7 @@ from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS
 from pinlib.engines import opendrain
 from pinlib.engines.opendrain.batch import WorstCase, build
 from pinlib.model.design import load_design
-from tests.bench.common import Result, in_turn, reference_work
+from tests.bench.common import Result, format_seconds, in_turn, reference_work
 from tests.bench.odunits import od_designs
 
 __all__ = ["run"]
@@ -69,12 +73,17 @@ def run(repeats: int = 40, quick: bool = False) -> list[Result]:
     # the two alone in turn, as SCALAR_BASELINE was measured; then the information
     t_one, t_unit = in_turn((one_bus, reference_work), n)
     units = t_one / t_unit
+    t_scalar = SCALAR_BASELINE * t_unit
     t_again, t_collect, t_arrays = in_turn((one_bus, gather, arrays), max(10, n // 2))
-    return [Result("od-one-bus: evaluate_bus / reference work", t_one, "reference_work",
-                   t_unit, units, f"of the reference work's time (scalar engine "
-                   f"{SCALAR_BASELINE:g}x)", target=f"<= {SCALAR_BASELINE:g}",
+    return [Result(f"od-one-bus: evaluate_bus, {len(buses)} buses", t_one,
+                   f"scalar engine ({SCALAR_BASELINE:g} x reference_work "
+                   f"{format_seconds(t_unit)}, recorded at 7abe15c)", t_scalar,
+                   target="ratio >= 1x (no slower than the scalar engine)",
                    passed=units <= SCALAR_BASELINE,
-                   extra=[f"{len(buses)} buses; collect alone {t_collect * 1e3:.3g} ms "
-                          f"({t_again / t_collect:.3g}x of it)"]),
+                   extra=[f"{units:.3g} reference works (scalar {SCALAR_BASELINE:g})"]),
             Result(f"od-one-bus: {len(buses)} buses, arrays without wording", t_arrays,
-                   "evaluate_bus", t_again, t_arrays / t_again, "of evaluate_bus's time")]
+                   no_baseline="a part of evaluate_bus's work",
+                   extra=[f"{t_arrays / t_again:.0%} of evaluate_bus's "
+                          f"{format_seconds(t_again)} in turn",
+                          f"collect alone {format_seconds(t_collect)} "
+                          f"({t_collect / t_again:.0%})"])]

@@ -1,7 +1,9 @@
 """Scaling lines: how the cost grows with the size of the input (issue 14).
 
-Each line times one input and the same input made k times larger, in this process, and
-prints the ratio: k means the cost grows linearly.  The inputs (invented test data):
+Each line times one input made k times larger against its baseline, what linear growth
+would cost: k times the time of the input at 1/k of the size, in this process.  The
+ratio is that over the larger input's time: 1 means the cost grows linearly, above 1
+less than linearly, 1/k quadratically.  The inputs (invented test data):
 
 * a valid design whose ``description`` is a long string (the loader locates the lines
   of the values after it);
@@ -16,7 +18,9 @@ prints the ratio: k means the cost grows linearly.  The inputs (invented test da
 The push-pull engine checks every driver into the pins of every other device, so the
 SPI device line has a part that grows with the square of the devices (small up to the
 limit, :data:`pinlib.core.worklimits.MAX_DEVICES_PUSH_PULL`, dominant far beyond it): it
-is printed without a target.  A target ``< 2k`` separates linear (k) from quadratic (k²).
+is printed without a target.  A target ``ratio > 0.5x`` (no more than twice linear growth,
+the time less than 2k times the smaller input's) separates linear (1) from quadratic
+(1/k).
 """
 
 from __future__ import annotations
@@ -31,7 +35,8 @@ from pinlib.core.errors import PinlibError
 from pinlib.engines.dispatch import check_design
 from pinlib.model.design import load_design
 from pinlib.studies.whatif import monte_carlo
-from tests.bench.common import Result, median_time
+from tests.bench.common import Result, format_seconds, median_time
+from tests.bench.common import linear as linear_cost
 
 __all__ = ["run"]
 
@@ -137,6 +142,16 @@ def _load_and_check(path: Path):
             return err
 
 
+#: A linear line's target: no worse than twice linear growth (t_large < 2 k t_small).
+LINEAR_TARGET = "ratio > 0.5x (under 2x linear growth)"
+
+
+def _baseline_name(k: int, t_small: float, small: str) -> str:
+    if small == "size":
+        small = f"the 1/{k}-size input"
+    return f"{k} x {small} ({format_seconds(t_small)}; linear growth)"
+
+
 def _scaling(name, small, large, k, tmp: Path, repeats: int, *, linear=True) -> Result:
     a, b = tmp / f"{name}-small.toml", tmp / f"{name}-large.toml"
     a.write_text(small, encoding="utf-8")
@@ -144,11 +159,10 @@ def _scaling(name, small, large, k, tmp: Path, repeats: int, *, linear=True) -> 
     _load_and_check(a)  # imports, library, fits
     t_small = median_time(lambda: _load_and_check(a), repeats, warmup=0)
     t_large = median_time(lambda: _load_and_check(b), max(1, repeats // 2), warmup=0)
-    ratio = t_large / t_small
-    return Result(name, t_large, "1/" + str(k), t_small, ratio,
-                  f"for {k}x the size ({k} = linear)",
-                  target=f"< {2 * k} (linear)" if linear else "",
-                  passed=ratio < 2 * k if linear else None)
+    grew = t_large / t_small
+    return Result(name, t_large, _baseline_name(k, t_small, "size"), linear_cost(k, t_small),
+                  target=LINEAR_TARGET if linear else "",
+                  passed=grew < 2 * k if linear else None)
 
 
 def _monte_carlo(tmp: Path, n: int, k: int) -> Result:
@@ -168,10 +182,10 @@ def _monte_carlo(tmp: Path, n: int, k: int) -> Result:
     measure(1000)
     t_small, m_small = measure(n)
     t_large, m_large = measure(k * n)
-    ratio = t_large / t_small
-    return Result(f"Monte Carlo: {k * n:,} boards", t_large, f"{n:,} boards", t_small, ratio,
-                  f"for {k}x the boards ({k} = linear)", target=f"< {2 * k} (linear)",
-                  passed=ratio < 2 * k,
+    grew = t_large / t_small
+    return Result(f"Monte Carlo: {k * n:,} boards", t_large,
+                  _baseline_name(k, t_small, f"{n:,} boards"), linear_cost(k, t_small),
+                  target=LINEAR_TARGET, passed=grew < 2 * k,
                   extra=[f"peak traced memory {m_large / 2**20:.0f} MB against "
                          f"{m_small / 2**20:.0f} MB ({m_large / m_small:.2f}x; 1 = bounded)"])
 
