@@ -949,7 +949,8 @@ def test_crosstalk_explorer_is_the_engines_coupling():
     # at the design's own settings the widget shows the check's coupling result
     (expected,) = check_file(demo).couplings
     assert [c.to_json() for c in x.result.checks] == [c.to_json() for c in expected.checks]
-    assert x.noise_chart.svg and x.wave_chart.svg
+    low, high = x.wave_charts["low"], x.wave_charts["high"]
+    assert x.noise_chart.svg and low.svg and high.svg
     near = x.figures["peak_noise"].value
     # closer traces over a longer run with a faster edge: more noise (derived from Kb
     # rising as the gap closes, pinlib.physics.coupled)
@@ -957,14 +958,18 @@ def test_crosstalk_explorer_is_the_engines_coupling():
     assert x.error is None and x.figures["peak_noise"].value > near
     assert x.result.aggressor == "edge-1"   # the edge moved: a described edge now
     assert x.updates == 1                   # three settings, one recompute
-    x.show.value = "held high"              # a click: the chart only, nothing solved again
-    assert x.updates == 1 and "held low" not in x.wave_chart.svg
-    # each choice drawn to where its traces settle, not over the whole record (a line
-    # held high through its pull-up recovers far slower than a driven-low one)
-    x.show.value = "held low"
-    low = [k for k in x.waves.traces if k.startswith("held low")]
-    rows = [r for layer in x.wave_chart.data() for r in layer if "t" in r]
-    assert len(rows) == 2 * len(x.waves.window(low)[0]) < 2 * len(x.waves.t)
+    x.show.value = "held high"              # a click: the charts only, nothing solved again
+    assert x.updates == 1 and low.svg is None and low.widget.layout.display == "none"
+    assert "held high" in high.svg and "held low" not in high.svg
+    # held low and held high each on its own time axis, drawn to where it settles (a
+    # line held high through its pull-up recovers far slower than a driven-low one)
+    x.show.value = "both"
+    assert low.svg and high.svg and low.widget.layout.display is None
+    for held, view in x.wave_charts.items():
+        labels = [k for k in x.waves.traces if k.startswith(f"held {held}")]
+        rows = [r for layer in view.data() for r in layer if "t" in r]
+        assert len(rows) == len(labels) * len(x.waves.window(labels)[0])
+    assert len(x.waves.window([k for k in x.waves.traces if "low" in k])[0]) < len(x.waves.t)
     with pytest.raises(InputError):
         x.set(spacing=-1.0)
 

@@ -79,8 +79,13 @@ class CrosstalkExplorer(_Panel):
     design, result : the design and the coupling's CouplingResult.
     figures : dict of str to Figure
     sweep, waves : NoiseSweep, NoiseWaves
-        What the two charts draw.
-    noise_chart, wave_chart : ChartView
+        What the charts draw.
+    noise_chart : ChartView
+        Peak noise against spacing.
+    wave_charts : dict of str to ChartView
+        The victim's waveforms held ``"low"`` and held ``"high"``, each on its own time
+        axis to where it settles (a line held high through its pull-up recovers far
+        slower than a driven-low one); "Show" hides the one not chosen.
     """
 
     def __init__(self, path="workbooks/designs/demo-board.toml", *, coupling: int = 0):
@@ -115,7 +120,7 @@ class CrosstalkExplorer(_Panel):
         self.show.observe(lambda _c: self._draw_waves(), names="value")
         self._choice("show", self.show)
         self.noise_chart = ChartView()
-        self.wave_chart = ChartView()
+        self.wave_charts = {held: ChartView() for held in ("low", "high")}
         self.figures_html = W.HTML(layout=block_layout())
         self.checks_html = W.HTML(layout=block_layout())
         self.notes_html = W.HTML(layout=block_layout())
@@ -158,7 +163,7 @@ class CrosstalkExplorer(_Panel):
         except PinlibError as err:
             self.result, self.figures, self.sweep, self.waves = None, {}, None, None
             self.figures_html.value = self.checks_html.value = self.notes_html.value = ""
-            self._failed(err, [self.noise_chart, self.wave_chart])
+            self._failed(err, [self.noise_chart, *self.wave_charts.values()])
             return
         self._show(got)
 
@@ -189,25 +194,34 @@ class CrosstalkExplorer(_Panel):
         if w is None:
             return
         shown = self.show.value
-        t, traces = w.window([k for k in w.traces if shown == "both" or k.startswith(shown)])
-        self.wave_chart.draw(lambda: charts.spec(
-            charts.waveforms, t, traces, v_il=w.v_il, v_ih=w.v_ih, vdd=w.vdd,
-            title="Victim noise", subtitle="at the victim's receivers"))
+        for held, view in self.wave_charts.items():
+            labels = [k for k in w.traces if k.startswith(f"held {held}")]
+            if shown not in ("both", f"held {held}") or not labels:
+                view.clear(f"held {held}: not shown (Show)")
+                view.widget.layout.display = "none"
+                continue
+            view.widget.layout.display = None
+            t, traces = w.window(labels)
+            view.draw(lambda t=t, traces=traces, held=held: charts.spec(
+                charts.waveforms, t, traces, v_il=w.v_il, v_ih=w.v_ih, vdd=w.vdd,
+                title=f"Victim noise, held {held}",
+                subtitle="at the victim's receivers, to where it settles"))
 
     def static_view(self) -> StaticView:
         """The charts and tables as plain HTML, for exported pages."""
         if self.result is None:
             return StaticView(caution_html() + error_html(self.error))
+        waves = "".join(v.html() for v in self.wave_charts.values() if v.svg)
         return StaticView(caution_html() + self.status_html.value + self.noise_chart.html()
-                          + self.wave_chart.html() + self.figures_html.value
-                          + self.checks_html.value)
+                          + waves + self.figures_html.value + self.checks_html.value)
 
     def _layout(self) -> W.Widget:
         controls = [heading("The run"), self.spacing, self.length,
                     heading("The aggressor"), self.edge_time,
                     heading("Waveforms"), self.show]
         outputs = [self.held_html, self.status_html, self.noise_chart.widget,
-                   self.wave_chart.widget, self.figures_html, self.notes_html]
+                   *(v.widget for v in self.wave_charts.values()), self.figures_html,
+                   self.notes_html]
         return W.VBox([self._header("Crosstalk onto a slow line"),
                        self._columns(controls, outputs, [self.checks_html])],
                       layout=W.Layout(width="100%"))
