@@ -372,6 +372,8 @@ def test_specification_levels_of_a_device_on_its_own_rail_follow_the_pullup_rail
         assert vil_u2 == pytest.approx(0.99, rel=1e-12), own
         assert vih_u2 == pytest.approx(2.31, rel=1e-12), own
         assert vol.status == voh.status == "pass"
+        assert any("those of the pull-up rail for a device on its own" in n and "U2 SDA" in n
+                   for n in res.notes), res.notes
         margins = [c for c in res.checks if c.id.startswith("noise-margin-")]
         assert len(margins) == 4
         for c in margins:

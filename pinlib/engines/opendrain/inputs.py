@@ -358,8 +358,12 @@ def _receivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
         if not pin_rules(t.pin, t.dev.part, lim)[1]:
             continue
         if t.pin.v_il is None or t.pin.v_ih is None:
+            # relative levels of a device on its own rail: those of the pull-up rail
+            rail = (", those of the pull-up rail for a device on its own (UM10204 rev. 6, "
+                    "table 11, note [1])" if t.own and getattr(d_il.value, "scale", 0.0)
+                    else "")
             _default(seg_in, f"no input thresholds stated: taken at the specification's "
-                             f"levels ({lim.source_levels})", f"{t.label} {up}")
+                             f"levels ({lim.source_levels}){rail}", f"{t.label} {up}")
         il = t.pin.v_il if t.pin.v_il is not None else d_il
         ih = t.pin.v_ih if t.pin.v_ih is not None else d_ih
         src = t.source("v_il") if t.pin.v_il is not None else lim.source_levels
