@@ -349,6 +349,48 @@ def test_abs_max_against_the_pullup_rail(tmp_path):
     assert res.check("v-oh").status == "pass"
 
 
+def test_specification_levels_of_a_device_on_its_own_rail_follow_the_pullup_rail(tmp_path):
+    # a part stating no thresholds (invented test data) on its own 1.8 V or 5 V rail,
+    # pulled up to 3.3 V: the specification's levels are those of the pull-up rail, the
+    # rail the noise margins are taken at; on its own rail they used to fail the 1.8 V
+    # part's low-level margin (0.54 V − 0.25 V < 0.33 V) and the 5 V part's VIH (3.5 V)
+    from pinlib.studies import whatif
+
+    for own in ("1.8 V", "5 V"):
+        devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+                   f'{{ ref = "U2", part = "t-target-bare", supply = "{own}" }}']
+        d = design(tmp_path, one_bus(pullup="2.2 kΩ", devices=devices))
+        res = opendrain.evaluate_bus(d.buses[0], d)
+        levels = {c.id: c for c in res.checks
+                  if c.id in ("v-ol", "v-oh") and c.subject.startswith("SDA")}
+        # published: UM10204 rev. 6, table 11, note [1]: a device on a non-standard supply
+        # relates its input levels to the VDD its pull-ups are connected to; with table
+        # 9's 0.3·VDD and 0.7·VDD, derived: 0.99 V and 2.31 V at 3.3 V
+        vol, voh = levels["v-ol"], levels["v-oh"]
+        vil_u2 = vol.value / (1 - vol.details["receivers"]["U2"])
+        vih_u2 = voh.value / (1 + voh.details["receivers"]["U2"])
+        assert vil_u2 == pytest.approx(0.99, rel=1e-12), own
+        assert vih_u2 == pytest.approx(2.31, rel=1e-12), own
+        assert vol.status == voh.status == "pass"
+        assert any("those of the pull-up rail for a device on its own" in n and "U2 SDA" in n
+                   for n in res.notes), res.notes
+        margins = [c for c in res.checks if c.id.startswith("noise-margin-")]
+        assert len(margins) == 4
+        for c in margins:
+            # published: UM10204 rev. 6, table 10, VnL 0.1·VDD, VnH 0.2·VDD of the pull-up
+            # rail (table 12, note [1]: referred to table 11's levels); derived: 0.33 V and
+            # 0.66 V at 3.3 V
+            assert c.limit == pytest.approx(0.33 if c.id.endswith("low") else 0.66,
+                                            rel=1e-12)
+            assert c.status == "pass", (own, c.id, c.subject, c.value)
+        # derived: the array path of a what-if batch, which reads the pins again, agrees
+        mc = {c.name: c for c in whatif.monte_carlo(d, 4, seed=1).checks}
+        for c in margins:
+            drawn = mc[f"b {c.subject} {c.id}"]
+            assert all(float(x) == pytest.approx(c.value, rel=1e-9)
+                       for x in drawn.values), (own, c.id)
+
+
 def test_switched_device_fails_with_the_clamp_current(tmp_path):
     devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
                '{ ref = "U2", part = "t-target", switched = true }']

@@ -92,6 +92,10 @@ class PinData:
     off_tolerant: Any
     t_of_min: Any | None   # [s]
     t_of_max: Any | None   # [s]
+    #: whether v_il / v_ih are the specification's (the part states none): those of a
+    #: device on its own rail are taken at the pull-up rail (UM10204 rev. 6, table 11,
+    #: note [1])
+    spec_levels: tuple = (False, False)
 
 
 @value_class
@@ -134,6 +138,7 @@ def _pin_data(pin, name: str, part: Part, dev: Device, lim: OpenDrainLimits,
         off_tolerant=bool(pin.off_tolerant),
         t_of_min=float(pin.t_of_min.value) if pin.t_of_min is not None else None,
         t_of_max=float(pin.t_of_max.value) if pin.t_of_max is not None else None,
+        spec_levels=(pin.v_il is None, pin.v_ih is None),
     )
 
 
@@ -384,14 +389,19 @@ class _Seg:
 
 
 
-def _corner(level: Level, tap: _Tap, v, worst: str):
+def _corner(level: Level, tap: _Tap, v, worst: str, follow_bus=False):
     """A level at the rail corners: following the pull-up rail, or the worst end of the
-    device's own rail (the engine's ``_corner_values``). [V]"""
-    if not tap.own:
+    device's own rail (the engine's ``_corner_values``); ``follow_bus`` (a bool, or a
+    batch column of them where the parts at a position differ) takes it at the pull-up
+    rail even for a device on its own rail. [V]"""
+    if not tap.own or (np.ndim(follow_bus) == 0 and follow_bus):
         return level.at(v)
     vals = level.at(tap.rail)
     red = vals.min(axis=1, keepdims=True) if worst == "min" else vals.max(axis=1, keepdims=True)
-    return np.broadcast_to(red, np.broadcast_shapes(red.shape, np.shape(v)))
+    own = np.broadcast_to(red, np.broadcast_shapes(red.shape, np.shape(v)))
+    if np.ndim(follow_bus) == 0:
+        return own
+    return np.where(follow_bus, level.at(v), own)
 
 
 
@@ -472,7 +482,8 @@ def _line(bus, seg, signal, function, v, parts, scen, lim, board) -> _Line:
                                 keepdims=True)
         drivers.append(_Driver(t, v_ol, i_ol, v_ol / i_ol,
                                scen.series(bus, seg, t.dev, signal), offset))
-    receivers = [_Receiver(t, _corner(t.pin.v_il, t, v, "min"), _corner(t.pin.v_ih, t, v, "max"))
+    receivers = [_Receiver(t, _corner(t.pin.v_il, t, v, "min", t.pin.spec_levels[0]),
+                           _corner(t.pin.v_ih, t, v, "max", t.pin.spec_levels[1]))
                  for t in taps if t.pin.receiver]
     contributors = []
     for t in taps:

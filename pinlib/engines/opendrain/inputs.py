@@ -202,10 +202,12 @@ def _default(seg_in: SegmentInputs, text: str, where: str) -> None:
         seg_in.defaults[text].append(where)
 
 
-def _corner_values(value: Sourced, tap: _Tap, v: np.ndarray, tol: float, worst: str):
+def _corner_values(value: Sourced, tap: _Tap, v: np.ndarray, tol: float, worst: str,
+                   follow_bus: bool = False):
     """A part value at each rail corner: following the pull-up rail, or the worst end of
-    the device's own rail (``worst`` = ``"min"`` or ``"max"``). [unit]"""
-    if not tap.own:
+    the device's own rail (``worst`` = ``"min"`` or ``"max"``); ``follow_bus`` takes it
+    at the pull-up rail even for a device on its own rail. [unit]"""
+    if not tap.own or follow_bus:
         return np.broadcast_to(np.asarray(value.at(v), dtype=float), v.shape).astype(float)
     own = np.array([tap.vdd * (1 - tol), tap.vdd * (1 + tol)])
     vals = np.asarray(value.at(own), dtype=float)
@@ -356,13 +358,22 @@ def _receivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
         if not pin_rules(t.pin, t.dev.part, lim)[1]:
             continue
         if t.pin.v_il is None or t.pin.v_ih is None:
+            # relative levels of a device on its own rail: those of the pull-up rail
+            rail = (", those of the pull-up rail for a device on its own (UM10204 rev. 6, "
+                    "table 11, note [1])" if t.own and getattr(d_il.value, "scale", 0.0)
+                    else "")
             _default(seg_in, f"no input thresholds stated: taken at the specification's "
-                             f"levels ({lim.source_levels})", f"{t.label} {up}")
+                             f"levels ({lim.source_levels}){rail}", f"{t.label} {up}")
         il = t.pin.v_il if t.pin.v_il is not None else d_il
         ih = t.pin.v_ih if t.pin.v_ih is not None else d_ih
         src = t.source("v_il") if t.pin.v_il is not None else lim.source_levels
-        receivers.append(_Receiver(t, _corner_values(il, t, v, vtol, "min"),
-                                   _corner_values(ih, t, v, vtol, "max"), src))
+        # the specification's levels of a device on its own rail are those of the rail
+        # its pull-ups pull to (UM10204 rev. 6, table 11, note [1]); a part's own levels
+        # follow its own rail
+        receivers.append(_Receiver(t, _corner_values(il, t, v, vtol, "min",
+                                                     t.pin.v_il is None),
+                                   _corner_values(ih, t, v, vtol, "max",
+                                                  t.pin.v_ih is None), src))
     return receivers
 
 
