@@ -411,8 +411,10 @@ def test_i2c_sink_meets_vol1_or_vol2(lib):
             assert sda.i_ol.value >= 2e-3, pid
 
 
-# published: SMBus specification 3.1, table 4 (high-power DC): VIL 0.8 V max,
-# VIH 1.35 V min, VOL 0.4 V at 4 mA (100 kHz class), ILEAK-PIN 10 µA, CPIN 10 pF.
+# published: SMBus specification 3.1, table 4 (high-power DC), as product datasheets
+# quote it (the table itself not read here, docs/references.md [C2]): VIL 0.8 V max,
+# VIH 1.35 V min, ILEAK-PIN 10 µA, CPIN 10 pF; from memory (docs/references.md [M]):
+# VOL 0.4 V at 4 mA (100 kHz class).
 SMBUS31_TABLE4 = {"v_il": 0.8, "v_ih": 1.35, "v_ol": 0.4, "i_ol": 4e-3,
                   "leakage": 10e-6, "c_in": 10e-12}
 

@@ -214,7 +214,8 @@ def test_smbus_rise_definition(tmp_path):
     assert fig(res, "rise_factor") == pytest.approx(0.387, abs=5e-4)
     assert fig(res, "rise_time") == pytest.approx(math.log(2.65 / 1.8) * 2200 * 100e-12,
                                                   rel=1e-9)
-    # published: SMBus 3.1 table 2, tR max 1000 ns for the 100 kHz class
+    # published: SMBus 3.1 table 2, tR max 1000 ns for the 100 kHz class (as datasheets
+    # quote it; docs/references.md [C2])
     assert fig(res, "rp_max") == pytest.approx(1e-6 / (math.log(2.65 / 1.8) * 100e-12),
                                                rel=1e-9)
     chk = res.check("rise-time")

@@ -93,7 +93,8 @@ def _smbus(tmp_path, clock: str):
 
 
 def test_smbus_limits_carry_the_minimum_clock():
-    # published: SMBus specification 3.1, table 2: fSMB min 10 kHz in every class
+    # published: SMBus specification 3.1, table 2: fSMB min 10 kHz in every class (as
+    # datasheets quote it; docs/references.md [C2])
     for mode in ("100k", "400k", "1m"):
         assert limits_for("smbus", mode).f_min == 10e3
     # published: UM10204 rev. 6 table 10: fSCL min 0 Hz (no minimum) in every mode
@@ -102,7 +103,8 @@ def test_smbus_limits_carry_the_minimum_clock():
 
 def test_smbus_clock_below_its_minimum_fails(tmp_path):
     chk = _smbus(tmp_path, "1 kHz").check("scl-frequency")
-    # published: SMBus specification 3.1, table 2: fSMB min 10 kHz
+    # published: SMBus specification 3.1, table 2: fSMB min 10 kHz (as datasheets quote
+    # it; docs/references.md [C2])
     assert chk.status == "fail" and chk.limit == 10e3 and chk.value == 1e3
     assert chk.margin == pytest.approx(-0.9)  # derived: (1 − 10)/10
     assert "table 2 (fSMB)" in chk.source and "minimum 10 kHz" in chk.message
@@ -111,6 +113,7 @@ def test_smbus_clock_below_its_minimum_fails(tmp_path):
 
 def test_smbus_clock_inside_its_range_passes_against_the_nearer_limit(tmp_path):
     # published: SMBus specification 3.1, table 2: fSMB 10–100 kHz for the 100 kHz class
+    # (as datasheets quote it; docs/references.md [C2])
     low = _smbus(tmp_path, "10 kHz").check("scl-frequency")
     assert low.status != "fail" and low.limit == 10e3
     mid = _smbus(tmp_path, "80 kHz").check("scl-frequency")
@@ -254,8 +257,9 @@ def test_a_leakage_noise_margin_failure_names_the_largest_pullup(tmp_path):
 
 def test_smbus_bus_leakage_is_checked_against_ileak_bus(tmp_path):
     # published: SMBus specification 3.1, table 4 (high-power DC): ILEAK-BUS ±200 µA a
-    # bus segment.  derived: t-ctrl-3v3's 1 µA and 25 targets of 10 µA (test data,
-    # invented) = 251 µA on each line, over the limit; 15 targets = 151 µA, under it
+    # bus segment (as datasheets quote it; docs/references.md [C2]).  derived:
+    # t-ctrl-3v3's 1 µA and 25 targets of 10 µA (test data, invented) = 251 µA on each
+    # line, over the limit; 15 targets = 151 µA, under it
     res = _leaky_bus(tmp_path, "1.5 kΩ", n=25, mode="100k", protocol="smbus")
     chk = next(c for c in res.checks if c.id == "bus-leakage" and c.subject == "SDA")
     assert chk.status == "fail"
@@ -294,8 +298,8 @@ def test_a_missing_sda_setup_margin_says_why(tmp_path):
     ("i2c", "standard", 400),   # published: UM10204 rev. 6 table 10, Cb 400 pF
     ("i2c", "fast", 400),       # published: UM10204 rev. 6 table 10, Cb 400 pF
     ("i2c", "fast-plus", 550),  # published: UM10204 rev. 6 table 10, Cb 550 pF
-    ("smbus", "400k", 400),     # published: SMBus 3.1 table 4, CBUS 400 pF
-    ("smbus", "1m", 400),       # published: SMBus 3.1 table 4, CBUS 400 pF
+    ("smbus", "400k", 400),     # published: SMBus 3.1 table 4, CBUS 400 pF ([C2])
+    ("smbus", "1m", 400),       # published: SMBus 3.1 table 4, CBUS 400 pF ([C2])
 ])
 def test_bus_capacitance_at_and_just_past_each_limit(tmp_path, protocol, mode, cb_max_pf):
     # the two test pins carry 10 pF each (test data, invented); the rest is extra.

@@ -261,7 +261,9 @@ def test_i2c_sink_spec_array_equals_scalar_loop():
 # SMBus
 # ---------------------------------------------------------------------------
 
-# published: SMBus specification version 3.1, table 2 (docs/references.md [C])
+# published: SMBus specification version 3.1, table 2, as product datasheets quote it
+# (the table itself not read here: docs/references.md [C2]); from memory
+# (docs/references.md [M]): the 1 MHz class's tSU:STA and tF
 SMBUS31_TABLE2 = {
     #                  100k    400k   1m
     "f_smb_min_khz": (10, 10, 10),
@@ -285,7 +287,9 @@ SMBUS31_TABLE2 = {
     "t_por_ms": (500, 500, 500),
 }
 
-# published: SMBus specification version 3.1, table 4, high power (docs/references.md [C])
+# published: SMBus specification version 3.1, table 4, high power, as product datasheets
+# quote it (docs/references.md [C2]); from memory (docs/references.md [M]): VHYS 80 mV
+# and VOL 0.4 V at 4/6/20 mA
 SMBUS31_TABLE4 = {
     "v_il_max_v": (0.8, 0.8, 0.8),
     "v_ih_min_v": (1.35, 1.35, 1.35),
@@ -312,7 +316,7 @@ def _smbus_rows(table: dict):
 
 @pytest.mark.parametrize("name, field, printed, scale", list(_smbus_rows(SMBUS31_TABLE2)))
 def test_smbus_ac_values(name, field, printed, scale):
-    # published: SMBus specification version 3.1, table 2
+    # published: SMBus specification version 3.1, table 2 ([C2] and [M]: see the table)
     cls = smbus.smbus_class(name)
     value = getattr(cls, field)
     if printed is None:
@@ -324,7 +328,7 @@ def test_smbus_ac_values(name, field, printed, scale):
 
 @pytest.mark.parametrize("name, field, printed, scale", list(_smbus_rows(SMBUS31_TABLE4)))
 def test_smbus_high_power_dc_values(name, field, printed, scale):
-    # published: SMBus specification version 3.1, table 4
+    # published: SMBus specification version 3.1, table 4 ([C2] and [M]: see the table)
     cls = smbus.smbus_class(name)
     value = getattr(cls, field)
     if printed is None:
@@ -341,7 +345,8 @@ def test_smbus_100k_blank_fields_are_explained():
 
 def test_smbus_low_power_values():
     lp = smbus.SMBUS_LOW_POWER
-    # published: SMBus specification version 3.1, table 3 (docs/references.md [C])
+    # from memory: SMBus specification version 3.1, table 3 (no quote found;
+    # docs/references.md [M])
     assert (lp.vdd_min, lp.vdd_max) == (1.62, 5.5)
     assert (lp.v_il_max, lp.v_ih_min) == (0.8, 1.35)
     assert lp.v_ol == 0.4 and lp.i_ol == pytest.approx(350 * UA, rel=1e-12)
@@ -355,8 +360,9 @@ def test_smbus_low_power_values():
 @pytest.mark.parametrize("cls", [*CLASSES, "low-power", smbus.SMBUS_LOW_POWER])
 def test_smbus_rise_points(cls):
     v_lo, v_hi = smbus.rise_points(cls)
-    # published: SMBus 3.1 (docs/references.md [C]): rise/fall from VIL,max - 0.15 V = 0.65 V
-    # to VIH,min + 0.15 V = 1.50 V
+    # published: SMBus 3.1, as datasheets quote it (docs/references.md [C2], tF's points
+    # in doubt there): rise/fall from VIL,max - 0.15 V = 0.65 V to VIH,min + 0.15 V =
+    # 1.50 V
     assert v_lo == pytest.approx(0.65, abs=1e-12)
     assert v_hi == pytest.approx(1.50, abs=1e-12)
 
