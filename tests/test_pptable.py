@@ -64,16 +64,23 @@ def _factors(bus, n, seed):
             for spec in ppb.parameter_specs(bus)}
 
 
-@pytest.fixture(scope="module")
-def both(link):
-    design, bus = link
-    n = 60
-    factors = _factors(bus, n, seed=7)
+def _both_ways(bus, design, n, seed):
+    """``n`` boards of the bus built from its table and by the engine: (by table, by
+    engine, the table, the nominal result)."""
+    factors = _factors(bus, n, seed=seed)
     nominal = evaluate_bus(bus, design)
     tables: dict = {}
     by_table = ppb.build(bus, design, factors, n, nominal=nominal, tables=tables)
     by_engine = ppb.build(bus, design, factors, n, nominal=nominal)
-    return by_table, by_engine, tables[bus.id], n
+    return by_table, by_engine, tables[bus.id], nominal
+
+
+@pytest.fixture(scope="module")
+def both(link):
+    design, bus = link
+    n = 60
+    by_table, by_engine, table, _ = _both_ways(bus, design, n, seed=7)
+    return by_table, by_engine, table, n
 
 
 def test_the_table_is_built_and_says_how_well_it_agrees(both, link):
@@ -563,12 +570,8 @@ devices = [
     design = load_design(tmp_path / "d.toml", library_folders=[tmp_path])
     bus = design.buses[0]
     n = 200
-    factors = _factors(bus, n, seed=3)
-    nominal = evaluate_bus(bus, design)
-    tables: dict = {}
-    by_table = ppb.build(bus, design, factors, n, nominal=nominal, tables=tables)
-    by_engine = ppb.build(bus, design, factors, n, nominal=nominal)
-    assert isinstance(tables[bus.id], pptable.LineTable)
+    by_table, by_engine, table, nominal = _both_ways(bus, design, n, seed=3)
+    assert isinstance(table, pptable.LineTable)
     j = next(i for i, nm in enumerate(by_engine.names)
              if nm["name"].startswith("s cipo-setup"))
     eng, tab = by_engine.items[j], by_table.items[j]
