@@ -262,6 +262,14 @@ def test_a_long_line_of_per_length_values_is_noted_as_solved_lossless(lib, metre
         assert "measurement" in notes[0]
 
 
+def test_a_trace_of_zero_thickness_states_no_copper_resistance(lib):
+    # the trace models' thin-strip limit (a thickness of 0 is valid input): no note,
+    # and no division by its zero cross-section
+    ms = Geometry("ms", "microstrip", 0.3e-3, 0.2e-3, None, 0.0, 4.3)
+    a = controller_line(lib, [Section(4.0, ms)])
+    assert not _loss_notes(a)
+
+
 @pytest.mark.parametrize(("metres", "noted"), [(4.0, True), (3.0, False)])
 def test_a_trace_whose_copper_resistance_nears_z0_is_noted(lib, metres, noted):
     ms = Geometry("ms", "microstrip", 0.3e-3, 0.2e-3, None, 35e-6, 4.3)

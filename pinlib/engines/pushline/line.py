@@ -245,9 +245,10 @@ def _loss_note(a: LineAnalysis, notes: list) -> None:
     z0s = [s.z0 for s in a.stretches if s.td > 0]
     if not z0s:
         return  # a lumped capacitance: no line to be lossy
+    # (a geometry of zero thickness, the models' thin-strip limit, states no resistance)
     r_dc = sum(RHO_COPPER * st.length / (sec.geometry.width * sec.geometry.thickness)
                for sec, st in zip(a.line.sections, a.stretches, strict=True)
-               if sec.geometry is not None)
+               if sec.geometry is not None and sec.geometry.thickness > 0)
     bare = [st for sec, st in zip(a.line.sections, a.stretches, strict=True)
             if sec.geometry is None and st.td > 0]
     td_bare = sum(st.td for st in bare)
