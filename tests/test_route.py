@@ -97,6 +97,28 @@ def test_refusals_name_file_line_and_field(tmp_path, stretches, problem, field, 
     assert err.line == line
 
 
+@pytest.mark.parametrize(("stretches", "hint"), [
+    # the same stretch written twice: the earlier one is named
+    ((_stretch("U1", "T1"), _stretch("T1", "U2"), _stretch("T1", "U2"), _stretch("T1", "U3")),
+     "route[1] already joins T1 and U2 (the same stretch written twice?)"),
+    # a loop through two earlier stretches: both named, in order from the one point
+    ((_stretch("U1", "A"), _stretch("A", "U2"), _stretch("U2", "B"), _stretch("B", "A"),
+      _stretch("B", "U3")),
+     "B and A are already joined by route[2] (U2 to B) and route[1] (A to U2)"),
+    ((_stretch("U1", "U2"), _stretch("U2", "U2"), _stretch("U2", "U3")),
+     "a stretch from U2 to itself"),
+])
+def test_a_loop_names_what_already_joins_its_points(tmp_path, stretches, hint):
+    # the error said only that the two points were already joined, leaving the user to
+    # find the other stretch (a duplicated line of the file, or a loop through several)
+    with pytest.raises(DesignError) as info:
+        load_design(_design(tmp_path, *stretches))
+    assert info.value.problem == M.ROUTE_CLOSES_LOOP
+    assert info.value.hint.startswith(hint)
+    assert info.value.hint.endswith("a route is a tree: drop this stretch or end it at a "
+                                    "new junction")
+
+
 def test_missing_device_is_named(tmp_path):
     with pytest.raises(DesignError) as info:
         load_design(_design(tmp_path, _stretch("U1", "U2"), _stretch("U2", "J1")))

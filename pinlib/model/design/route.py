@@ -37,9 +37,44 @@ def _root(parent: dict, x: str) -> str:
     return x
 
 
+def _joined_by(points: Sequence[tuple[str, str]], a: str, b: str) -> list[int]:
+    """The indices of the stretches among ``points`` that lead from ``a`` to ``b`` (they
+    form a tree, so one path), in order along it; empty when ``a`` is ``b``."""
+    came: dict[str, tuple[str, int] | None] = {a: None}
+    todo = [a]
+    while todo and b not in came:
+        p = todo.pop(0)
+        for i, (x, y) in enumerate(points):
+            for u, v in ((x, y), (y, x)):
+                if u == p and v not in came:
+                    came[v] = (p, i)
+                    todo.append(v)
+    path: list[int] = []
+    while came.get(b) is not None:
+        b, i = came[b]
+        path.append(i)
+    return path[::-1]
+
+
+def _loop_hint(points: Sequence[tuple[str, str]], i: int) -> str:
+    """What closes the loop at stretch ``i``: the point joined to itself, the same two
+    points written twice, or the earlier stretches that already join them."""
+    a, b = points[i]
+    fix = "a route is a tree: drop this stretch or end it at a new junction"
+    if a == b:
+        return f"a stretch from {a} to itself; {fix}"
+    path = _joined_by(points[:i], a, b)
+    if len(path) == 1:
+        return (f"route[{path[0]}] already joins {a} and {b} (the same stretch written "
+                f"twice?); {fix}")
+    way = [f"route[{k}] ({points[k][0]} to {points[k][1]})" for k in path]
+    return f"{a} and {b} are already joined by {', '.join(way[:-1])} and {way[-1]}; {fix}"
+
+
 def _check_tree(points: Sequence[tuple[str, str]], loc, err) -> None:
     """The stretches join their points into one tree: none closes a loop (a stretch whose
-    two points are already joined, itself included), none is left apart."""
+    two points are already joined, itself included; the hint names the stretches that
+    join them), none is left apart."""
     parent: dict[str, str] = {}
     for i, (a, b) in enumerate(points):
         for p in (a, b):
@@ -47,7 +82,7 @@ def _check_tree(points: Sequence[tuple[str, str]], loc, err) -> None:
         ra, rb = _root(parent, a), _root(parent, b)
         if ra == rb:
             raise err(M.ROUTE_CLOSES_LOOP, loc + (i, "to"), value=f"{a} to {b}",
-                      hint="a route is a tree: drop this stretch or end it at a new junction")
+                      hint=_loop_hint(points, i))
         parent[ra] = rb
     first = _root(parent, points[0][0])
     for i, (a, _b) in enumerate(points):
