@@ -281,6 +281,25 @@ def test_a_long_stub_rings_worse_at_the_far_device_than_a_short_one(tmp_path):
         assert b > 1.5 * a, check_id
 
 
+def test_an_open_stub_is_named_in_the_line_notes(tmp_path):
+    # "U7" at the end of a stub names no device of the design, so it is a junction and the
+    # stub is open: the design passed without a word, though a device written there but
+    # not listed on the bus (or misspelt) reads the same way
+    _, bus = _check(HEAD + """lines.sclk = { route = [
+  { from = "U1", to = "U2", length = "2 cm", geometry = "g" },
+  { from = "U2", to = "U3", length = "2 cm", geometry = "g" },
+  { from = "U3", to = "U7", length = "3 cm", geometry = "g" },
+] }
+""", tmp_path)
+    notes = [n for n in _line(bus, "sclk").notes if "open stub" in n]
+    assert notes == ["U7 ends an open stub (U3–U7, 30 mm): no device on the line sits "
+                     "there, so the stub only loads the line and reflects its edges; if a "
+                     "device does, list it on the bus with a pin on sclk"]
+    # a route whose every end is a device has no such note
+    _, bus = _check(_stub_design("1 cm"), tmp_path)
+    assert not [n for n in _line(bus, "sclk").notes if "open stub" in n]
+
+
 FLIGHT_HEAD = HEAD.replace('part = "mcu-3v3", role', 'part = "fpga-io-3v3", role')
 FLIGHT_ROUTE = """lines.{sig} = {{ route = [
   {{ from = "U1", to = "U2", length = "2 cm", geometry = "g" }},

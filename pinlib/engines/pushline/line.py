@@ -227,6 +227,7 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
                      + ("half at each of its two points" if net else "at the far end"))
     pullup = _driver_models(a, res)
     _lumped_note(a, notes)
+    _open_stub_note(a, notes)
     if not a.drivers:
         for name, unit in _FIGURE_UNITS:
             res.figure(name, None, unit)
@@ -282,6 +283,28 @@ def _lumped_note(a: LineAnalysis, notes: list) -> None:
             f"as a lumped capacitance, {where}, on each edge whose ramp is longer than "
             f"{format_si(s.td / wf.LUMP_FRACTION, 's')} (1,000 times its delay; so lumped, "
             "stubs kept every edge within 0.5 % of ngspice's)")
+
+
+def _open_stub_note(a: LineAnalysis, notes: list) -> None:
+    """A note naming each end of a route where no device on the line sits (an open stub):
+    a point is a device's pin or a junction by its name alone, so a device misspelt or
+    not listed on the bus, at the end of a stub, is read as a stub with nothing on it."""
+    route = a.line.route
+    if not route:
+        return
+    count: dict[str, int] = {}
+    for pair in route:
+        for p in pair:
+            count[p] = count.get(p, 0) + 1
+    on = {p.ref for p in a.loads} | {d.ref for d in a.drivers}
+    for i, (x, y) in enumerate(route):
+        for end, other in ((x, y), (y, x)):
+            if count[end] == 1 and end not in on:
+                length = format_si(a.line.sections[i].length, "m")
+                notes.append(
+                    f"{end} ends an open stub ({other}–{end}, {length}): no device on the "
+                    "line sits there, so the stub only loads the line and reflects its "
+                    f"edges; if a device does, list it on the bus with a pin on {a.signal}")
 
 
 def line_stretches(line: Line) -> list:
