@@ -300,6 +300,20 @@ def test_an_open_stub_is_named_in_the_line_notes(tmp_path):
     assert not [n for n in _line(bus, "sclk").notes if "open stub" in n]
 
 
+def test_the_stretches_without_a_delay_are_named(tmp_path):
+    # one stretch of the route given a capacitance without its delay, another of 0 cm:
+    # the note said "a section without a delay" and left the user to find which
+    _, bus = _check(HEAD + """lines.sclk = { route = [
+  { from = "U1", to = "T", length = "3 cm", geometry = "g" },
+  { from = "T", to = "U2", length = "2 cm", capacitance = "1 pF/cm" },
+  { from = "T", to = "U3", length = "3 cm", geometry = "g" },
+  { from = "T", to = "TP1", length = "0 cm", geometry = "g" },
+] }
+""", tmp_path)
+    assert ("a section without a delay (T–U2, T–TP1) counts as a lumped capacitance half "
+            "at each of its two points") in _line(bus, "sclk").notes
+
+
 FLIGHT_HEAD = HEAD.replace('part = "mcu-3v3", role', 'part = "fpga-io-3v3", role')
 FLIGHT_ROUTE = """lines.{sig} = {{ route = [
   {{ from = "U1", to = "U2", length = "2 cm", geometry = "g" }},

@@ -223,7 +223,12 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
         raise DesignError(M.NO_DRIVER_ON_LINE, field=f"lines.{signal}",
                           hint="a push-pull or open-drain pin must sit on the line")
     if any(not s.td > 0 for s in stretches) and stretches:
-        notes.append("a section without a delay counts as a lumped capacitance "
+        # on a route (or a chain of sections) the note names which: one stretch of many
+        # given a capacitance without its delay, or a stretch of 0 length
+        which = [("–".join(line.route[i]) if line.route else f"section {i + 1}")
+                 for i, s in enumerate(stretches) if not s.td > 0]
+        named = f" ({', '.join(which)})" if len(stretches) > 1 else ""
+        notes.append(f"a section without a delay{named} counts as a lumped capacitance "
                      + ("half at each of its two points" if net else "at the far end"))
     pullup = _driver_models(a, res)
     _lumped_note(a, notes)
