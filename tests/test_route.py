@@ -314,6 +314,18 @@ def test_the_stretches_without_a_delay_are_named(tmp_path):
             "at each of its two points") in _line(bus, "sclk").notes
 
 
+def test_the_point_of_the_extra_capacitance_is_named(tmp_path):
+    # a star of equal branches: which device's point took the 10 pF was said nowhere
+    _, bus = _check(HEAD + """lines.sclk = { extra_capacitance = "10 pF", route = [
+  { from = "U1", to = "S", length = "1 cm", geometry = "g" },
+  { from = "S", to = "U2", length = "6 cm", geometry = "g" },
+  { from = "S", to = "U3", length = "9 cm", geometry = "g" },
+] }
+""", tmp_path)
+    assert ("extra_capacitance 10 pF sits at U3, the route's point farthest in delay "
+            "from U1") in _line(bus, "sclk").notes
+
+
 FLIGHT_HEAD = HEAD.replace('part = "mcu-3v3", role', 'part = "fpga-io-3v3", role')
 FLIGHT_ROUTE = """lines.{sig} = {{ route = [
   {{ from = "U1", to = "U2", length = "2 cm", geometry = "g" }},

@@ -233,6 +233,11 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
     pullup = _driver_models(a, res)
     _lumped_note(a, notes)
     _open_stub_note(a, notes)
+    if net is not None and line.extra_capacitance > 0:
+        # where on a route it sits is the engine's choice; a star's equal branches tie
+        frm = anchor if anchor in net.names else line.route[0][0]
+        notes.append(f"extra_capacitance {format_si(line.extra_capacitance, 'F')} sits at "
+                     f"{net.names[net.far]}, the route's point farthest in delay from {frm}")
     if not a.drivers:
         for name, unit in _FIGURE_UNITS:
             res.figure(name, None, unit)
