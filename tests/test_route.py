@@ -292,9 +292,18 @@ def test_an_open_stub_is_named_in_the_line_notes(tmp_path):
 ] }
 """, tmp_path)
     notes = [n for n in _line(bus, "sclk").notes if "open stub" in n]
-    assert notes == ["U7 ends an open stub (U3–U7, 30 mm): no device on the line sits "
-                     "there, so the stub only loads the line and reflects its edges; if a "
-                     "device does, list it on the bus with a pin on sclk"]
+    assert notes == ["an open stub: U3–U7 (30 mm): no device on the line sits at its end, "
+                     "so it only loads the line and reflects its edges; if a device does, "
+                     "list it on the bus with a pin on sclk"]
+    # many open stubs (a star of test points): one note, the first six named
+    _, bus = _check(HEAD + "lines.sclk = { route = [\n  " + ",\n  ".join(
+        [_stretch("U1", "S"), _stretch("S", "U2"), _stretch("S", "U3")]
+        + [_stretch("S", f"TP{k}", "1 cm") for k in range(8)]) + "\n] }\n", tmp_path)
+    notes = [n for n in _line(bus, "sclk").notes if "open stub" in n]
+    assert len(notes) == 1 and notes[0].startswith(
+        "open stubs: S–TP0 (10 mm), S–TP1 (10 mm), S–TP2 (10 mm), S–TP3 (10 mm), "
+        "S–TP4 (10 mm), S–TP5 (10 mm) and 2 more: no device on the line sits at their "
+        "ends, so each only loads")
     # a route whose every end is a device has no such note
     _, bus = _check(_stub_design("1 cm"), tmp_path)
     assert not [n for n in _line(bus, "sclk").notes if "open stub" in n]

@@ -296,9 +296,10 @@ def _lumped_note(a: LineAnalysis, notes: list) -> None:
 
 
 def _open_stub_note(a: LineAnalysis, notes: list) -> None:
-    """A note naming each end of a route where no device on the line sits (an open stub):
-    a point is a device's pin or a junction by its name alone, so a device misspelt or
-    not listed on the bus, at the end of a stub, is read as a stub with nothing on it."""
+    """One note naming the ends of a route where no device on the line sits (open stubs;
+    the first :data:`_STUBS_NAMED`, the rest counted): a point is a device's pin or a
+    junction by its name alone, so a device misspelt or not listed on the bus, at the
+    end of a stub, is read as a stub with nothing on it."""
     route = a.line.route
     if not route:
         return
@@ -307,14 +308,23 @@ def _open_stub_note(a: LineAnalysis, notes: list) -> None:
         for p in pair:
             count[p] = count.get(p, 0) + 1
     on = {p.ref for p in a.loads} | {d.ref for d in a.drivers}
-    for i, (x, y) in enumerate(route):
-        for end, other in ((x, y), (y, x)):
-            if count[end] == 1 and end not in on:
-                length = format_si(a.line.sections[i].length, "m")
-                notes.append(
-                    f"{end} ends an open stub ({other}–{end}, {length}): no device on the "
-                    "line sits there, so the stub only loads the line and reflects its "
-                    f"edges; if a device does, list it on the bus with a pin on {a.signal}")
+    stubs = [f"{other}–{end} ({format_si(a.line.sections[i].length, 'm')})"
+             for i, (x, y) in enumerate(route) for end, other in ((x, y), (y, x))
+             if count[end] == 1 and end not in on]
+    if not stubs:
+        return
+    more = len(stubs) - _STUBS_NAMED
+    listed = ", ".join(stubs[:_STUBS_NAMED]) + (f" and {more} more" if more > 0 else "")
+    one = len(stubs) == 1
+    notes.append(
+        f"{'an open stub' if one else 'open stubs'}: {listed}: no device on the line sits "
+        f"at {'its end' if one else 'their ends'}, so {'it' if one else 'each'} only "
+        "loads the line and reflects its edges; if a device does, list it on the bus with "
+        f"a pin on {a.signal}")
+
+
+#: Open stubs one note names by their stretch (:func:`_open_stub_note`); the rest counted.
+_STUBS_NAMED = 6
 
 
 def line_stretches(line: Line) -> list:
