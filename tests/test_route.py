@@ -119,6 +119,34 @@ def test_a_loop_names_what_already_joins_its_points(tmp_path, stretches, hint):
                                     "new junction")
 
 
+def test_too_many_stretches_for_the_devices_on_the_line_says_so(tmp_path):
+    # 70 peripherals on SCLK need a route of at least 70 stretches, past the limit of 64:
+    # the hint said to join stretches between the same two devices, which cannot help
+    from pinlib.core.worklimits import MAX_ROUTE_STRETCHES
+
+    refs = ["U1", "U2", "U3"] + [f"U{k}" for k in range(10, 78)]
+    head = HEAD.replace('  { ref = "U3", part = "nor-flash-spi" },\n',
+                        '  { ref = "U3", part = "nor-flash-spi" },\n' + "".join(
+                            f'  {{ ref = "{r}", part = "nor-flash-spi" }},\n'
+                            for r in refs[3:]))
+    pairs = zip(refs, refs[1:], strict=False)
+    path = _design_text(tmp_path, head, *(_stretch(a, b) for a, b in pairs))
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    assert info.value.problem == M.TOO_MANY_ROUTE_STRETCHES
+    assert info.value.hint == (
+        f"the line has {len(refs)} devices, and a route of {MAX_ROUTE_STRETCHES} stretches "
+        f"joins at most {MAX_ROUTE_STRETCHES + 1} points: give the line as one stretch or "
+        "as sections (every device at the far end) instead")
+    # a line of few devices keeps the advice to join stretches
+    chain = ["U1"] + [f"N{k}" for k in range(MAX_ROUTE_STRETCHES)] + ["U2"]
+    pairs = zip(chain, chain[1:], strict=False)
+    path = _design(tmp_path, *(_stretch(a, b) for a, b in pairs), _stretch("U2", "U3"))
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    assert info.value.hint == "join stretches of one geometry between the same two devices"
+
+
 def test_missing_device_is_named(tmp_path):
     with pytest.raises(DesignError) as info:
         load_design(_design(tmp_path, _stretch("U1", "U2"), _stretch("U2", "J1")))

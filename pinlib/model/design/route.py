@@ -129,9 +129,15 @@ def route_of(rt: RawTrace, loc, devices: Sequence[Device], protocol: str, signal
     if rt.sections or rt.length is not None or rt.geometry or rt.capacitance or rt.part:
         raise err(M.ROUTE_OR_STRETCH, rloc)
     if len(route) > MAX_ROUTE_STRETCHES:  # before building any of them
+        n_on = sum(on_line(d, protocol, signal, n_lines) for d in devices)
+        hint = ("join stretches of one geometry between the same two devices"
+                if n_on <= MAX_ROUTE_STRETCHES + 1 else
+                # every device is a point of the route: it cannot hold them all
+                f"the line has {n_on:,} devices, and a route of {MAX_ROUTE_STRETCHES:,} "
+                f"stretches joins at most {MAX_ROUTE_STRETCHES + 1:,} points: give the line "
+                "as one stretch or as sections (every device at the far end) instead")
         raise err(M.TOO_MANY_ROUTE_STRETCHES, rloc, value=f"{len(route):,} stretches",
-                  expected=f"at most {MAX_ROUTE_STRETCHES:,} stretches",
-                  hint="join stretches of one geometry between the same two devices")
+                  expected=f"at most {MAX_ROUTE_STRETCHES:,} stretches", hint=hint)
     points = tuple((s.from_, s.to) for s in route)
     out = []
     for i, s in enumerate(route):
