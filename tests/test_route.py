@@ -147,6 +147,26 @@ def test_too_many_stretches_for_the_devices_on_the_line_says_so(tmp_path):
     assert info.value.hint == "join stretches of one geometry between the same two devices"
 
 
+def test_from_and_to_in_sections_point_to_a_route(tmp_path):
+    # stretches with from/to written under sections: "unknown field" listed the section's
+    # keys and left the user to find that from and to are a route's
+    path = tmp_path / "d.toml"
+    path.write_text(HEAD + "lines.sclk = { sections = [\n  " + _stretch("U1", "U2") + ",\n  "
+                    + _stretch("U2", "U3") + "\n] }\n", encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    err = info.value
+    assert err.problem == M.UNKNOWN_FIELD
+    assert err.field == "bus[0].lines.sclk.sections[0].from" and err.line == 21
+    assert err.hint == ("from and to name the points of a route's stretches: write the "
+                        "stretches as route = [...] in place of sections or length")
+    # a misspelt key inside a route keeps its closest-name hint
+    path = _design(tmp_path, _stretch("U1", "U2").replace("from", "form"), _stretch("U2", "U3"))
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    assert info.value.field.endswith("route[0].form") and "from" in info.value.hint
+
+
 def test_missing_device_is_named(tmp_path):
     with pytest.raises(DesignError) as info:
         load_design(_design(tmp_path, _stretch("U1", "U2"), _stretch("U2", "J1")))
