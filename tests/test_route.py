@@ -167,6 +167,18 @@ def test_from_and_to_in_sections_point_to_a_route(tmp_path):
     assert info.value.field.endswith("route[0].form") and "from" in info.value.hint
 
 
+def test_a_route_written_as_a_line_says_where_it_goes(tmp_path):
+    # lines.route = [...] was refused as "not a table" with the whole list quoted
+    path = tmp_path / "d.toml"
+    path.write_text(HEAD + "lines.route = [\n  " + _stretch("U1", "U2") + ",\n  "
+                    + _stretch("U2", "U3") + "\n]\n", encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    err = info.value
+    assert err.field == "bus[0].lines.route" and err.line == 20
+    assert err.hint == "a route belongs to one line: lines.sclk = { route = [...] }"
+
+
 def test_missing_device_is_named(tmp_path):
     with pytest.raises(DesignError) as info:
         load_design(_design(tmp_path, _stretch("U1", "U2"), _stretch("U2", "J1")))

@@ -106,8 +106,12 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
 
 def _route_key_hint(err: DesignError) -> DesignError:
     """An unknown ``from`` or ``to`` outside a route (in a line's ``sections``, or on the
-    line itself) with the hint that they are a route's: the fields listed did not say."""
+    line itself) with the hint that they are a route's: the fields listed did not say;
+    a route written as a line of its own (``lines.route = [...]``) with where it goes."""
     last = (err.field or "").rsplit(".", 1)[-1]
+    if err.problem == M.NOT_TABLE and (err.field or "").endswith(".lines.route"):
+        # lines.route = [...]: a line's name is its signal, the route goes inside it
+        return err.with_hint("a route belongs to one line: lines.sclk = { route = [...] }")
     if err.problem != M.UNKNOWN_FIELD or last not in ("from", "to") or ".route[" in err.field:
         return err
     return err.with_hint("from and to name the points of a route's stretches: write the "
