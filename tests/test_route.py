@@ -782,3 +782,11 @@ def test_a_stub_far_shorter_than_the_ramp_is_lumped_and_says_so(tmp_path):
     # no source: the capacitance of 1 µm of trace is negligible against picofarads of pins)
     for name in ("edge_rise_time", "edge_fall_time", "overshoot", "undershoot"):
         assert tiny.figures[name].value == pytest.approx(point.figures[name].value, rel=1e-4)
+
+
+def test_a_swap_names_the_paths_that_set_the_clock_as_the_checks_do(capsys):
+    # "Highest clock set by cipo-first-bit U3 -> cipo-setup U3": the figure's ids, where
+    # the checks and pinlib check's summary say "CIPO first bit U3"
+    assert main(["swap", str(ROUTE_DESIGN), "U3=display-controller-spi"]) in (0, 1)
+    (row,) = [ln for ln in capsys.readouterr().out.splitlines() if "Highest clock set by" in ln]
+    assert "cipo-" not in row and "CIPO first bit U3 → CIPO setup U3" in row
