@@ -790,3 +790,16 @@ def test_a_swap_names_the_paths_that_set_the_clock_as_the_checks_do(capsys):
     assert main(["swap", str(ROUTE_DESIGN), "U3=display-controller-spi"]) in (0, 1)
     (row,) = [ln for ln in capsys.readouterr().out.splitlines() if "Highest clock set by" in ln]
     assert "cipo-" not in row and "CIPO first bit U3 → CIPO setup U3" in row
+
+
+def test_the_swap_workbooks_ranking_writes_a_lines_signal_in_capitals():
+    # the ranking table of workbook 05 read "shared cipo Overshoot U1"
+    from pinlib.present.widgets.swaps import SwapExplorer
+    from pinlib.studies.candidates import rank_candidates
+
+    ranking = rank_candidates(load_design(ROUTE_DESIGN), "U3")
+    lines = [c.worst_check["line"] for c in ranking.candidates
+             if c.worst_check and c.worst_check.get("line")]
+    html = SwapExplorer._ranking_html(ranking)
+    assert lines and all(f"shared {s.upper()} " in html and f" {s} " not in html
+                         for s in lines)
