@@ -734,6 +734,16 @@ def test_a_route_diagram_names_a_cable_stretch_by_its_class(tmp_path):
     assert rows == ["U1 ─2 cm─ J1 ─25 cm ribbon-cable─ U2 ─3 cm─ U3"]
 
 
+def test_the_reports_route_diagram_starts_at_the_controller(tmp_path):
+    # a route written from its far end drew "U3 ─3 cm─ U2 ─2 cm─ U1": the engine reads it
+    # from the controller whichever way it is written, and now so does the report
+    path = _design(tmp_path, _stretch("U3", "U2", "3 cm"), _stretch("U2", "U1"))
+    out = tmp_path / "r.md"
+    assert main(["report", str(path), "--md", str(out)]) in (0, 1)
+    text = out.read_text(encoding="utf-8")
+    assert "U1 ─2 cm─ U2 ─3 cm─ U3" in text and "U3 ─3 cm─ U2" not in text
+
+
 def test_json_names_each_receiver(capsys):
     main(["check", str(ROUTE_DESIGN), "--json"])
     data = json.loads(capsys.readouterr().out)
