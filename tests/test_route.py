@@ -393,6 +393,16 @@ def test_the_point_of_the_extra_capacitance_is_named(tmp_path):
 """, tmp_path)
     assert ("extra_capacitance 10 pF sits at U3, the route's point farthest in delay "
             "from U1") in _line(bus, "sclk").notes
+    # equal branches: the note says the other point is as far and which one took it
+    _, bus = _check(HEAD + """lines.sclk = { extra_capacitance = "10 pF", route = [
+  { from = "U1", to = "S", length = "1 cm", geometry = "g" },
+  { from = "S", to = "U2", length = "6 cm", geometry = "g" },
+  { from = "S", to = "U3", length = "6 cm", geometry = "g" },
+] }
+""", tmp_path)
+    assert ("extra_capacitance 10 pF sits at U2, the route's point farthest in delay "
+            "from U1 (U3 as far: it goes to the first the route names)"
+            ) in _line(bus, "sclk").notes
 
 
 FLIGHT_HEAD = HEAD.replace('part = "mcu-3v3", role', 'part = "fpga-io-3v3", role')

@@ -236,8 +236,14 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
     if net is not None and line.extra_capacitance > 0:
         # where on a route it sits is the engine's choice; a star's equal branches tie
         frm = anchor if anchor in net.names else line.route[0][0]
+        d = net.delays_from(net.node(frm))
+        far = net.names[net.far]
+        ties = [net.names[k] for k, x in enumerate(d)
+                if k != net.far and x >= d[net.far] * (1 - 1e-9)]
         notes.append(f"extra_capacitance {format_si(line.extra_capacitance, 'F')} sits at "
-                     f"{net.names[net.far]}, the route's point farthest in delay from {frm}")
+                     f"{far}, the route's point farthest in delay from {frm}"
+                     + (f" ({', '.join(ties)} as far: it goes to the first the route "
+                        "names)" if ties else ""))
     if not a.drivers:
         for name, unit in _FIGURE_UNITS:
             res.figure(name, None, unit)
