@@ -196,6 +196,14 @@ def test_a_misspelt_device_on_a_route_is_suggested(tmp_path):
                               "(a junction): U3 misspelt?"
 
 
+def test_a_point_with_spaces_around_it_is_quoted_in_the_hint(tmp_path):
+    # " U3" read "the route's point  U3 names no device": the space did not show
+    with pytest.raises(DesignError) as info:
+        load_design(_design(tmp_path, _stretch("U1", "U2"), _stretch("U2", " U3")))
+    assert info.value.hint == ("the route's point ' U3' (spaces around it) names no device "
+                               "of the bus (a junction): U3 misspelt?")
+
+
 def test_an_empty_route_is_named_as_such(tmp_path):
     # route = [] was read as no route at all, and the line blamed for its missing length
     path = tmp_path / "d.toml"

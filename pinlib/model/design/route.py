@@ -166,8 +166,11 @@ def route_of(rt: RawTrace, loc, devices: Sequence[Device], protocol: str, signal
             from pinlib.core.nearby import closest
 
             near = closest(d.ref, sorted(named - of_bus))
+            # a name with spaces around it is quoted: unquoted they did not show
+            shown = (f"'{near[0]}' (spaces around it)" if near and near[0] != near[0].strip()
+                     else near[0] if near else "")
             raise err(M.ROUTE_MISSES_DEVICE, rloc, value=d.ref,
                       expected=f"a stretch from or to {d.ref}",
-                      hint=(f"the route's point {near[0]} names no device of the bus "
+                      hint=(f"the route's point {shown} names no device of the bus "
                             f"(a junction): {d.ref} misspelt?") if near else None)
     return tuple(out), points
