@@ -179,6 +179,18 @@ def test_a_route_written_as_a_line_says_where_it_goes(tmp_path):
     assert err.hint == "a route belongs to one line: lines.sclk = { route = [...] }"
 
 
+def test_a_route_of_one_stretch_not_in_a_list_says_so(tmp_path):
+    # route = { from = ..., to = ... } was refused as "not an array" and no more
+    path = tmp_path / "d.toml"
+    path.write_text(HEAD + "lines.sclk = { route = " + _stretch("U1", "U2") + " }\n",
+                    encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    err = info.value
+    assert err.field == "bus[0].lines.sclk.route" and err.line == 20
+    assert err.hint.startswith("a route is a list of stretches, even of one: route = [{")
+
+
 def test_missing_device_is_named(tmp_path):
     with pytest.raises(DesignError) as info:
         load_design(_design(tmp_path, _stretch("U1", "U2"), _stretch("U2", "J1")))

@@ -112,6 +112,10 @@ def _route_key_hint(err: DesignError) -> DesignError:
     if err.problem == M.NOT_TABLE and (err.field or "").endswith(".lines.route"):
         # lines.route = [...]: a line's name is its signal, the route goes inside it
         return err.with_hint("a route belongs to one line: lines.sclk = { route = [...] }")
+    if err.problem == M.NOT_ARRAY and last == "route":
+        # route = { from = ..., to = ... }: one stretch, not in a list
+        return err.with_hint('a route is a list of stretches, even of one: route = [{ from = '
+                             '"U1", to = "U2", length = "2 cm", geometry = "NAME" }]')
     if err.problem != M.UNKNOWN_FIELD or last not in ("from", "to") or ".route[" in err.field:
         return err
     return err.with_hint("from and to name the points of a route's stretches: write the "
