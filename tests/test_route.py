@@ -191,6 +191,16 @@ def test_a_route_of_one_stretch_not_in_a_list_says_so(tmp_path):
     assert err.hint.startswith("a route is a list of stretches, even of one: route = [{")
 
 
+def test_a_stretch_with_a_delay_alone_names_the_capacitance_it_lacks(tmp_path):
+    # { delay = "60 ps/cm" } alone: refused at its geometry with no word of the delay given
+    path = _design(tmp_path, _stretch("U1", "U2"),
+                   '{ from = "U2", to = "U3", length = "2 cm", delay = "60 ps/cm" }')
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    assert info.value.field == "bus[0].lines.sclk.route[1].geometry"
+    assert info.value.hint == "a delay per length goes with a capacitance per length"
+
+
 def test_missing_device_is_named(tmp_path):
     with pytest.raises(DesignError) as info:
         load_design(_design(tmp_path, _stretch("U1", "U2"), _stretch("U2", "J1")))
