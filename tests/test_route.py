@@ -853,3 +853,12 @@ def test_the_swap_workbooks_ranking_writes_a_lines_signal_in_capitals():
     html = SwapExplorer._ranking_html(ranking)
     assert lines and all(f"shared {s.upper()} " in html and f" {s} " not in html
                          for s in lines)
+
+
+def test_candidates_at_a_junction_say_it_is_one(capsys):
+    # "pinlib candidates spi-route.toml T1": T1 is a point of the SCLK route, and the
+    # error listed the devices without a word of why T1, on the board, is not one
+    assert main(["candidates", str(ROUTE_DESIGN), "T1"]) == 2
+    err = " ".join(capsys.readouterr().err.split())
+    assert "no device with this reference (got 'T1')" in err
+    assert "T1 is a junction of the route of shared.sclk, not a device; devices: U1" in err
