@@ -451,3 +451,17 @@ def test_a_figure_without_a_number_says_why_under_the_table():
     demo = cand.rank_candidates(load_design(DEMO), "U12")
     assert "reason" not in demo.to_json()["candidates"][0]["figures"]["display"]["max_clock"]
     assert "— f(max)" not in demo.format_text(width=80)
+
+
+def test_a_lines_check_names_its_signal_as_pinlib_check_does():
+    # the ranking read "cipo Overshoot U1" where pinlib check writes "CIPO U1: Overshoot"
+    # and its worst margin "(Overshoot CIPO U1)": the signal in capitals everywhere
+    d = load_design(Path(__file__).parent / "data" / "spi-route.toml")
+    r = cand.rank_candidates(d, "U3")
+    lines = [c for c in r.candidates if (c.worst_check or {}).get("line")]
+    assert lines
+    text = r.format_text(width=None)
+    for c in lines:
+        wc = c.worst_check
+        assert f"{wc['line'].upper()} " in text
+        assert f" {wc['line']} " not in text

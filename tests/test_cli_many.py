@@ -552,6 +552,25 @@ def test_new_with_a_team_library_writes_its_library_line(tmp_path, capsys):
     assert main(["check", str(path)]) in (0, 1)
 
 
+def test_the_route_example_of_a_new_design_holds_every_device(tmp_path):
+    # the commented route went from the controller to the first peripheral only: with a
+    # second one on the bus, the example uncommented was refused (U3 at no point)
+    path = tmp_path / "board.toml"
+    assert main(["new", str(path), "--part", "U1=mcu-3v3", "--part", "U2=nor-flash-spi",
+                 "--part", "U3=adc-spi"]) == 0
+    text = path.read_text(encoding="utf-8")
+    lines = text.splitlines()
+    first = next(i for i, ln in enumerate(lines) if ln.startswith("#   lines.sclk = "))
+    last = next(i for i in range(first, len(lines)) if lines[i] == "#   ] }")
+    example = [ln.removeprefix("#   ") for ln in lines[first:last + 1]]
+    routed = re.sub(r"^lines\.sclk = .*$", "\n".join(example), text, count=1,
+                    flags=re.MULTILINE)
+    path.write_text(routed, encoding="utf-8")
+    (spi,) = load_design(path).buses
+    assert spi.lines["sclk"].route == (("U1", "U2"), ("U2", "U3"))
+    assert main(["check", str(path)]) in (0, 1)
+
+
 def test_a_new_design_explains_itself_without_the_source_documents(tmp_path):
     # its comments sent the reader to docs/formats/design.md (for the modes, routes and
     # GPIO buses), a file of the source tree that an installed wheel does not carry

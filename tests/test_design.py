@@ -113,6 +113,12 @@ BAD = {
     # the bus ("BUS.SIGNAL" with an empty BUS is refused as no line).
     "empty-bus-id": (ONE_BUS.replace('id = "b"', 'id = ""').replace("PART", "t-target"),
                      "bus[0].id", 6, ["text shorter than 1 character", "(got '')"]),
+    # MOSI, MISO, SCK, SS: the older names were refused with no word of the new one
+    "spi-signal-older-name": (ONE_BUS.replace('protocol = "i2c"', 'protocol = "spi"\nclock = '
+                                              '"1 MHz"').replace("PART", "t-spi-only")
+                              + 'lines.mosi = { length = "3 cm", capacitance = "1 pF/cm" }\n',
+                              "bus[0].lines.mosi", 14,
+                              ["unknown SPI signal (got 'mosi')", "mosi is named copi here"]),
     "empty-segment-id": (SEGMENTS.replace('[[bus.segment]]\nsupply = "1.8 V"',
                                           '[[bus.segment]]\nid = ""\nsupply = "1.8 V"'),
                          "bus[0].segment[1].id", 17, ["text shorter than 1 character"]),

@@ -325,6 +325,16 @@ def test_a_relation_and_a_sign_stay_with_their_number_and_the_clock_names_its_ch
                                                         "    here"]
 
 
+def test_detail_names_the_path_that_sets_the_clock_as_the_checks_do(monkeypatch, capsys):
+    # --detail listed "Highest clock set by  cipo-first-bit U3", the check's id, where the
+    # summary line and the checks table say "CIPO first bit U3"
+    monkeypatch.setenv("COLUMNS", "80")
+    main(["check", str(ROOT / "tests" / "data" / "spi-route.toml"), "--detail"])
+    out = capsys.readouterr().out
+    (row,) = [ln for ln in out.splitlines() if "Highest clock set by" in ln]
+    assert row.split("set by", 1)[1].strip() == "CIPO first bit U3"
+
+
 def test_detail_notes_name_a_figure_by_its_label(monkeypatch, capsys):
     # the SPI notes start with their figure's JSON id ("max_clock 24 MHz: ..."); --detail
     # lists the figure above as "Highest clock" and its notes say the same

@@ -97,6 +97,110 @@ def test_refusals_name_file_line_and_field(tmp_path, stretches, problem, field, 
     assert err.line == line
 
 
+@pytest.mark.parametrize(("stretches", "hint"), [
+    # the same stretch written twice: the earlier one is named
+    ((_stretch("U1", "T1"), _stretch("T1", "U2"), _stretch("T1", "U2"), _stretch("T1", "U3")),
+     "route[1] already joins T1 and U2 (the same stretch written twice?)"),
+    # a loop through two earlier stretches: both named, in order from the one point
+    ((_stretch("U1", "A"), _stretch("A", "U2"), _stretch("U2", "B"), _stretch("B", "A"),
+      _stretch("B", "U3")),
+     "B and A are already joined by route[2] (U2 to B) and route[1] (A to U2)"),
+    ((_stretch("U1", "U2"), _stretch("U2", "U2"), _stretch("U2", "U3")),
+     "a stretch from U2 to itself"),
+])
+def test_a_loop_names_what_already_joins_its_points(tmp_path, stretches, hint):
+    # the error said only that the two points were already joined, leaving the user to
+    # find the other stretch (a duplicated line of the file, or a loop through several)
+    with pytest.raises(DesignError) as info:
+        load_design(_design(tmp_path, *stretches))
+    assert info.value.problem == M.ROUTE_CLOSES_LOOP
+    assert info.value.hint.startswith(hint)
+    assert info.value.hint.endswith("a route is a tree: drop this stretch or end it at a "
+                                    "new junction")
+
+
+def test_too_many_stretches_for_the_devices_on_the_line_says_so(tmp_path):
+    # 70 peripherals on SCLK need a route of at least 70 stretches, past the limit of 64:
+    # the hint said to join stretches between the same two devices, which cannot help
+    from pinlib.core.worklimits import MAX_ROUTE_STRETCHES
+
+    refs = ["U1", "U2", "U3"] + [f"U{k}" for k in range(10, 78)]
+    head = HEAD.replace('  { ref = "U3", part = "nor-flash-spi" },\n',
+                        '  { ref = "U3", part = "nor-flash-spi" },\n' + "".join(
+                            f'  {{ ref = "{r}", part = "nor-flash-spi" }},\n'
+                            for r in refs[3:]))
+    pairs = zip(refs, refs[1:], strict=False)
+    path = _design_text(tmp_path, head, *(_stretch(a, b) for a, b in pairs))
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    assert info.value.problem == M.TOO_MANY_ROUTE_STRETCHES
+    assert info.value.hint == (
+        f"the line has {len(refs)} devices, and a route of {MAX_ROUTE_STRETCHES} stretches "
+        f"joins at most {MAX_ROUTE_STRETCHES + 1} points: give the line as one stretch or "
+        "as sections (every device at the far end) instead")
+    # a line of few devices keeps the advice to join stretches
+    chain = ["U1"] + [f"N{k}" for k in range(MAX_ROUTE_STRETCHES)] + ["U2"]
+    pairs = zip(chain, chain[1:], strict=False)
+    path = _design(tmp_path, *(_stretch(a, b) for a, b in pairs), _stretch("U2", "U3"))
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    assert info.value.hint == "join stretches of one geometry between the same two devices"
+
+
+def test_from_and_to_in_sections_point_to_a_route(tmp_path):
+    # stretches with from/to written under sections: "unknown field" listed the section's
+    # keys and left the user to find that from and to are a route's
+    path = tmp_path / "d.toml"
+    path.write_text(HEAD + "lines.sclk = { sections = [\n  " + _stretch("U1", "U2") + ",\n  "
+                    + _stretch("U2", "U3") + "\n] }\n", encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    err = info.value
+    assert err.problem == M.UNKNOWN_FIELD
+    assert err.field == "bus[0].lines.sclk.sections[0].from" and err.line == 21
+    assert err.hint == ("from and to name the points of a route's stretches: write the "
+                        "stretches as route = [...] in place of sections or length")
+    # a misspelt key inside a route keeps its closest-name hint
+    path = _design(tmp_path, _stretch("U1", "U2").replace("from", "form"), _stretch("U2", "U3"))
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    assert info.value.field.endswith("route[0].form") and "from" in info.value.hint
+
+
+def test_a_route_written_as_a_line_says_where_it_goes(tmp_path):
+    # lines.route = [...] was refused as "not a table" with the whole list quoted
+    path = tmp_path / "d.toml"
+    path.write_text(HEAD + "lines.route = [\n  " + _stretch("U1", "U2") + ",\n  "
+                    + _stretch("U2", "U3") + "\n]\n", encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    err = info.value
+    assert err.field == "bus[0].lines.route" and err.line == 20
+    assert err.hint == "a route belongs to one line: lines.sclk = { route = [...] }"
+
+
+def test_a_route_of_one_stretch_not_in_a_list_says_so(tmp_path):
+    # route = { from = ..., to = ... } was refused as "not an array" and no more
+    path = tmp_path / "d.toml"
+    path.write_text(HEAD + "lines.sclk = { route = " + _stretch("U1", "U2") + " }\n",
+                    encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    err = info.value
+    assert err.field == "bus[0].lines.sclk.route" and err.line == 20
+    assert err.hint.startswith("a route is a list of stretches, even of one: route = [{")
+
+
+def test_a_stretch_with_a_delay_alone_names_the_capacitance_it_lacks(tmp_path):
+    # { delay = "60 ps/cm" } alone: refused at its geometry with no word of the delay given
+    path = _design(tmp_path, _stretch("U1", "U2"),
+                   '{ from = "U2", to = "U3", length = "2 cm", delay = "60 ps/cm" }')
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    assert info.value.field == "bus[0].lines.sclk.route[1].geometry"
+    assert info.value.hint == "a delay per length goes with a capacitance per length"
+
+
 def test_missing_device_is_named(tmp_path):
     with pytest.raises(DesignError) as info:
         load_design(_design(tmp_path, _stretch("U1", "U2"), _stretch("U2", "J1")))
@@ -112,6 +216,14 @@ def test_a_misspelt_device_on_a_route_is_suggested(tmp_path):
                             _stretch("T1", "U33")))
     assert info.value.hint == "the route's point U33 names no device of the bus " \
                               "(a junction): U3 misspelt?"
+
+
+def test_a_point_with_spaces_around_it_is_quoted_in_the_hint(tmp_path):
+    # " U3" read "the route's point  U3 names no device": the space did not show
+    with pytest.raises(DesignError) as info:
+        load_design(_design(tmp_path, _stretch("U1", "U2"), _stretch("U2", " U3")))
+    assert info.value.hint == ("the route's point ' U3' (spaces around it) names no device "
+                               "of the bus (a junction): U3 misspelt?")
 
 
 def test_an_empty_route_is_named_as_such(tmp_path):
@@ -259,6 +371,70 @@ def test_a_long_stub_rings_worse_at_the_far_device_than_a_short_one(tmp_path):
         assert b > 1.5 * a, check_id
 
 
+def test_an_open_stub_is_named_in_the_line_notes(tmp_path):
+    # "U7" at the end of a stub names no device of the design, so it is a junction and the
+    # stub is open: the design passed without a word, though a device written there but
+    # not listed on the bus (or misspelt) reads the same way
+    _, bus = _check(HEAD + """lines.sclk = { route = [
+  { from = "U1", to = "U2", length = "2 cm", geometry = "g" },
+  { from = "U2", to = "U3", length = "2 cm", geometry = "g" },
+  { from = "U3", to = "U7", length = "3 cm", geometry = "g" },
+] }
+""", tmp_path)
+    notes = [n for n in _line(bus, "sclk").notes if "open stub" in n]
+    assert notes == ["an open stub: U3–U7 (30 mm): no device on the line sits at its end, "
+                     "so it only loads the line and reflects its edges; if a device does, "
+                     "list it on the bus with a pin on sclk"]
+    # many open stubs (a star of test points): one note, the first six named
+    _, bus = _check(HEAD + "lines.sclk = { route = [\n  " + ",\n  ".join(
+        [_stretch("U1", "S"), _stretch("S", "U2"), _stretch("S", "U3")]
+        + [_stretch("S", f"TP{k}", "1 cm") for k in range(8)]) + "\n] }\n", tmp_path)
+    notes = [n for n in _line(bus, "sclk").notes if "open stub" in n]
+    assert len(notes) == 1 and notes[0].startswith(
+        "open stubs: S–TP0 (10 mm), S–TP1 (10 mm), S–TP2 (10 mm), S–TP3 (10 mm), "
+        "S–TP4 (10 mm), S–TP5 (10 mm) and 2 more: no device on the line sits at their "
+        "ends, so each only loads")
+    # a route whose every end is a device has no such note
+    _, bus = _check(_stub_design("1 cm"), tmp_path)
+    assert not [n for n in _line(bus, "sclk").notes if "open stub" in n]
+
+
+def test_the_stretches_without_a_delay_are_named(tmp_path):
+    # one stretch of the route given a capacitance without its delay, another of 0 cm:
+    # the note said "a section without a delay" and left the user to find which
+    _, bus = _check(HEAD + """lines.sclk = { route = [
+  { from = "U1", to = "T", length = "3 cm", geometry = "g" },
+  { from = "T", to = "U2", length = "2 cm", capacitance = "1 pF/cm" },
+  { from = "T", to = "U3", length = "3 cm", geometry = "g" },
+  { from = "T", to = "TP1", length = "0 cm", geometry = "g" },
+] }
+""", tmp_path)
+    assert ("a section without a delay (T–U2, T–TP1) counts as a lumped capacitance half "
+            "at each of its two points") in _line(bus, "sclk").notes
+
+
+def test_the_point_of_the_extra_capacitance_is_named(tmp_path):
+    # a star of equal branches: which device's point took the 10 pF was said nowhere
+    _, bus = _check(HEAD + """lines.sclk = { extra_capacitance = "10 pF", route = [
+  { from = "U1", to = "S", length = "1 cm", geometry = "g" },
+  { from = "S", to = "U2", length = "6 cm", geometry = "g" },
+  { from = "S", to = "U3", length = "9 cm", geometry = "g" },
+] }
+""", tmp_path)
+    assert ("extra_capacitance 10 pF sits at U3, the route's point farthest in delay "
+            "from U1") in _line(bus, "sclk").notes
+    # equal branches: the note says the other point is as far and which one took it
+    _, bus = _check(HEAD + """lines.sclk = { extra_capacitance = "10 pF", route = [
+  { from = "U1", to = "S", length = "1 cm", geometry = "g" },
+  { from = "S", to = "U2", length = "6 cm", geometry = "g" },
+  { from = "S", to = "U3", length = "6 cm", geometry = "g" },
+] }
+""", tmp_path)
+    assert ("extra_capacitance 10 pF sits at U2, the route's point farthest in delay "
+            "from U1 (U3 as far: it goes to the first the route names)"
+            ) in _line(bus, "sclk").notes
+
+
 FLIGHT_HEAD = HEAD.replace('part = "mcu-3v3", role', 'part = "fpga-io-3v3", role')
 FLIGHT_ROUTE = """lines.{sig} = {{ route = [
   {{ from = "U1", to = "U2", length = "2 cm", geometry = "g" }},
@@ -332,7 +508,8 @@ def test_candidates_name_the_receiver_of_a_line_check_that_sets_the_worst(tmp_pa
     assert on_lines  # the 40 cm stub rings: line checks set the worst margins
     for wc in on_lines:
         assert wc["subject"]
-        assert f"{wc['line']} {check_label(wc['id'])} {wc['subject']}" in text
+        # the signal in capitals, as pinlib check writes it
+        assert f"{wc['line'].upper()} {check_label(wc['id'])} {wc['subject']}" in text
 
 
 def test_an_overshoot_figure_at_a_pin_no_check_covers_is_explained(tmp_path):
@@ -597,6 +774,16 @@ def test_a_route_diagram_names_a_cable_stretch_by_its_class(tmp_path):
     assert rows == ["U1 ─2 cm─ J1 ─25 cm ribbon-cable─ U2 ─3 cm─ U3"]
 
 
+def test_the_reports_route_diagram_starts_at_the_controller(tmp_path):
+    # a route written from its far end drew "U3 ─3 cm─ U2 ─2 cm─ U1": the engine reads it
+    # from the controller whichever way it is written, and now so does the report
+    path = _design(tmp_path, _stretch("U3", "U2", "3 cm"), _stretch("U2", "U1"))
+    out = tmp_path / "r.md"
+    assert main(["report", str(path), "--md", str(out)]) in (0, 1)
+    text = out.read_text(encoding="utf-8")
+    assert "U1 ─2 cm─ U2 ─3 cm─ U3" in text and "U3 ─3 cm─ U2" not in text
+
+
 def test_json_names_each_receiver(capsys):
     main(["check", str(ROUTE_DESIGN), "--json"])
     data = json.loads(capsys.readouterr().out)
@@ -645,3 +832,33 @@ def test_a_stub_far_shorter_than_the_ramp_is_lumped_and_says_so(tmp_path):
     # no source: the capacitance of 1 µm of trace is negligible against picofarads of pins)
     for name in ("edge_rise_time", "edge_fall_time", "overshoot", "undershoot"):
         assert tiny.figures[name].value == pytest.approx(point.figures[name].value, rel=1e-4)
+
+
+def test_a_swap_names_the_paths_that_set_the_clock_as_the_checks_do(capsys):
+    # "Highest clock set by cipo-first-bit U3 -> cipo-setup U3": the figure's ids, where
+    # the checks and pinlib check's summary say "CIPO first bit U3"
+    assert main(["swap", str(ROUTE_DESIGN), "U3=display-controller-spi"]) in (0, 1)
+    (row,) = [ln for ln in capsys.readouterr().out.splitlines() if "Highest clock set by" in ln]
+    assert "cipo-" not in row and "CIPO first bit U3 → CIPO setup U3" in row
+
+
+def test_the_swap_workbooks_ranking_writes_a_lines_signal_in_capitals():
+    # the ranking table of workbook 05 read "shared cipo Overshoot U1"
+    from pinlib.present.widgets.swaps import SwapExplorer
+    from pinlib.studies.candidates import rank_candidates
+
+    ranking = rank_candidates(load_design(ROUTE_DESIGN), "U3")
+    lines = [c.worst_check["line"] for c in ranking.candidates
+             if c.worst_check and c.worst_check.get("line")]
+    html = SwapExplorer._ranking_html(ranking)
+    assert lines and all(f"shared {s.upper()} " in html and f" {s} " not in html
+                         for s in lines)
+
+
+def test_candidates_at_a_junction_say_it_is_one(capsys):
+    # "pinlib candidates spi-route.toml T1": T1 is a point of the SCLK route, and the
+    # error listed the devices without a word of why T1, on the board, is not one
+    assert main(["candidates", str(ROUTE_DESIGN), "T1"]) == 2
+    err = " ".join(capsys.readouterr().err.split())
+    assert "no device with this reference (got 'T1')" in err
+    assert "T1 is a junction of the route of shared.sclk, not a device; devices: U1" in err

@@ -44,6 +44,8 @@ class Placement:
 NOTE_COLUMN = 33
 #: The widest line the starter writes.
 WIDTH = 80
+#: Peripherals the commented route example of an SPI bus chains through (the rest counted).
+_ROUTE_EXAMPLE_DEVICES = 4
 
 
 def _noted(code: str, note: str) -> str:
@@ -188,13 +190,20 @@ def _bus(group, members, bridges=()) -> tuple[list[str], bool]:
     out += _device_lines(members, ctrl)
     # the design format's documents are not in an installed wheel: the comment shows
     # the form of a route itself
-    far = next((pl.ref for pl, _ in members if pl is not ctrl), "U2")
+    # a daisy chain through every device: a route must hold each device on its line, so
+    # an example to one peripheral of several is refused once uncommented
+    chain = [ctrl.ref] + ([pl.ref for pl, _ in members if pl is not ctrl] or ["U2"])
+    shown = chain[:_ROUTE_EXAMPLE_DEVICES + 1]
     out += ["# placeholders: each line's routed length; a `route` instead puts each",
             "# device at its own place, as stretches between refs or junctions, e.g.",
-            '#   lines.sclk = { series_resistor = "auto", route = [',
-            f'#     {{ from = "{ctrl.ref}", to = "{far}", length = "5 cm", '
-            'geometry = "outer" },',
-            "#   ] }"]
+            '#   lines.sclk = { series_resistor = "auto", route = [']
+    out += [f'#     {{ from = "{a}", to = "{b}", length = "5 cm", geometry = "outer" }},'
+            for a, b in zip(shown, shown[1:], strict=False)]
+    if len(chain) > len(shown):
+        rest = len(chain) - len(shown)
+        out.append(f"#     (and on to the other {rest}: every device on the line is a "
+                   "point of its route)")
+    out.append("#   ] }")
     for sig in proto.signal_names:
         if sig in ("sclk", "cs") or any(sig in _serves(p, proto) for pl, p in members
                                         if pl is not ctrl):

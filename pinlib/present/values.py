@@ -6,7 +6,7 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 
-from pinlib.core.labels import figure_label, shown_figures
+from pinlib.core.labels import figure_label, path_label, shown_figures
 from pinlib.core.quantity import format_value
 from pinlib.model.result import Check, DesignResult, Figure, figure_text
 
@@ -21,8 +21,16 @@ def figure_cells(figures: Mapping[str, Figure]) -> list[tuple[str, str]]:
     """A group's figures as people read them: (label, value with its unit) in table
     order, each quantity once (:func:`pinlib.core.labels.shown_figures`: a line's copy of
     the bus figure, the pull-up that is the resistor, shown once); ids stay in the JSON."""
-    return [(figure_label(n), figure_text(figures[n]))
+    return [(figure_label(n), _text(n, figures[n]))
             for n in shown_figures(figures, same=_same)]
+
+
+def _text(name: str, f: Figure) -> str:
+    """A figure's value as text; the timing path that sets the highest clock as the checks
+    name it ("CIPO setup U2", not its id "cipo-setup U2", which stays in the JSON)."""
+    if name == "max_clock_limited_by" and isinstance(f.value, str):
+        return path_label(f.value)
+    return figure_text(f)
 
 
 def with_fix(text: str, c: Check) -> str:

@@ -434,10 +434,11 @@ def _summary_of(results: list[BusResult], places) -> tuple:
 
 def _where_text(wc: dict, multi: bool) -> str:
     """Where a check is, as the ranking names it: ``main-3v3 Noise margin low SDA``; a
-    line's check with its subject, the receiver (``sclk Overshoot U3``: on a route each
-    receiver has its own)."""
+    line's check with its signal in capitals, as ``pinlib check`` writes it, and its
+    subject, the receiver (``SCLK Overshoot U3``: on a route each receiver has its own)."""
+    line = wc.get("line")
     return " ".join(x for x in (wc["bus"] if multi else None, wc.get("segment"),
-                                wc.get("line"), check_label(wc["id"]),
+                                line.upper() if line else None, check_label(wc["id"]),
                                 wc.get("subject")) if x)
 
 

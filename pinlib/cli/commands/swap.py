@@ -136,8 +136,9 @@ def _table(rows) -> list[str]:
     from pinlib.core.labels import figure_label
     from pinlib.present.detail import table
     from pinlib.present.terminal import width
-    from pinlib.studies.compare import format_change, format_figure
+    from pinlib.studies.compare import format_change
     from pinlib.studies.compare.changes import shown_changes
+    from pinlib.studies.compare.figures import figure_value_text
 
     cells, heads, path = [["", "figure", "before", "after", "change"]], {}, None
     for row in shown_changes(rows):
@@ -149,7 +150,8 @@ def _table(rows) -> list[str]:
         if row.kind == "same" and row.change == 0:
             change = ""
         cells.append(["*" if row.moved else "", figure_label(row.name),
-                      format_figure(row.old, row.unit), format_figure(row.new, row.unit),
+                      figure_value_text(row.name, row.old, row.unit),
+                      figure_value_text(row.name, row.new, row.unit),
                       change])
     return table(cells, "", width(), flex=1, heads=heads)
 

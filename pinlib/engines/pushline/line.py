@@ -223,10 +223,27 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
         raise DesignError(M.NO_DRIVER_ON_LINE, field=f"lines.{signal}",
                           hint="a push-pull or open-drain pin must sit on the line")
     if any(not s.td > 0 for s in stretches) and stretches:
-        notes.append("a section without a delay counts as a lumped capacitance "
+        # on a route (or a chain of sections) the note names which: one stretch of many
+        # given a capacitance without its delay, or a stretch of 0 length
+        which = [("–".join(line.route[i]) if line.route else f"section {i + 1}")
+                 for i, s in enumerate(stretches) if not s.td > 0]
+        named = f" ({', '.join(which)})" if len(stretches) > 1 else ""
+        notes.append(f"a section without a delay{named} counts as a lumped capacitance "
                      + ("half at each of its two points" if net else "at the far end"))
     pullup = _driver_models(a, res)
     _lumped_note(a, notes)
+    _open_stub_note(a, notes)
+    if net is not None and line.extra_capacitance > 0:
+        # where on a route it sits is the engine's choice; a star's equal branches tie
+        frm = anchor if anchor in net.names else line.route[0][0]
+        d = net.delays_from(net.node(frm))
+        far = net.names[net.far]
+        ties = [net.names[k] for k, x in enumerate(d)
+                if k != net.far and x >= d[net.far] * (1 - 1e-9)]
+        notes.append(f"extra_capacitance {format_si(line.extra_capacitance, 'F')} sits at "
+                     f"{far}, the route's point farthest in delay from {frm}"
+                     + (f" ({', '.join(ties)} as far: it goes to the first the route "
+                        "names)" if ties else ""))
     if not a.drivers:
         for name, unit in _FIGURE_UNITS:
             res.figure(name, None, unit)
@@ -283,6 +300,38 @@ def _lumped_note(a: LineAnalysis, notes: list) -> None:
             f"as a lumped capacitance, {where}, on each edge whose ramp is longer than "
             f"{format_si(s.td / wf.LUMP_FRACTION, 's')} (1,000 times its delay; so lumped, "
             "stubs kept every edge within 0.5 % of ngspice's)")
+
+
+def _open_stub_note(a: LineAnalysis, notes: list) -> None:
+    """One note naming the ends of a route where no device on the line sits (open stubs;
+    the first :data:`_STUBS_NAMED`, the rest counted): a point is a device's pin or a
+    junction by its name alone, so a device misspelt or not listed on the bus, at the
+    end of a stub, is read as a stub with nothing on it."""
+    route = a.line.route
+    if not route:
+        return
+    count: dict[str, int] = {}
+    for pair in route:
+        for p in pair:
+            count[p] = count.get(p, 0) + 1
+    on = {p.ref for p in a.loads} | {d.ref for d in a.drivers}
+    stubs = [f"{other}–{end} ({format_si(a.line.sections[i].length, 'm')})"
+             for i, (x, y) in enumerate(route) for end, other in ((x, y), (y, x))
+             if count[end] == 1 and end not in on]
+    if not stubs:
+        return
+    more = len(stubs) - _STUBS_NAMED
+    listed = ", ".join(stubs[:_STUBS_NAMED]) + (f" and {more} more" if more > 0 else "")
+    one = len(stubs) == 1
+    notes.append(
+        f"{'an open stub' if one else 'open stubs'}: {listed}: no device on the line sits "
+        f"at {'its end' if one else 'their ends'}, so {'it' if one else 'each'} only "
+        "loads the line and reflects its edges; if a device does, list it on the bus with "
+        f"a pin on {a.signal}")
+
+
+#: Open stubs one note names by their stretch (:func:`_open_stub_note`); the rest counted.
+_STUBS_NAMED = 6
 
 
 def line_stretches(line: Line) -> list:

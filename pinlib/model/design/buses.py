@@ -12,6 +12,12 @@ from pinlib.model.design.objects import Bus, Device, Line, Segment
 from pinlib.model.design.raw import SIGNAL_FUNCTION, SPI_SIGNALS, RawBus
 from pinlib.model.design.route import route_of
 
+#: Older names of the SPI signals still on schematics and in datasheets, and the name a
+#: design gives each (common practice, no source; SDI and SDO are left out: which line
+#: they name depends on the device).
+_SPI_OTHER_NAMES = {"mosi": "copi", "miso": "cipo", "sck": "sclk", "clk": "sclk",
+                    "ss": "cs", "nss": "cs", "csn": "cs", "cs_n": "cs"}
+
 _SEGMENT_KEYS = ("supply", "supply_tolerance", "pullup", "pullup_tolerance", "pullup_series",
                  "trace", "extra_capacitance", "capacitance_tolerance", "length_tolerance")
 
@@ -133,7 +139,9 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
     for sig, rt in rb.lines.items():
         loc = bloc + ("lines", sig)
         if rb.protocol == "spi" and sig not in SPI_SIGNALS:
-            raise err(M.UNKNOWN_SPI_SIGNAL, loc, value=sig, expected=", ".join(SPI_SIGNALS))
+            same = _SPI_OTHER_NAMES.get(sig.lower())
+            raise err(M.UNKNOWN_SPI_SIGNAL, loc, value=sig, expected=", ".join(SPI_SIGNALS),
+                      hint=f"{sig} is named {same} here" if same else None)
         if rt.route:
             secs, points = route_of(rt, loc, devices, rb.protocol, sig, len(rb.lines),
                                     sections, err, homes)

@@ -71,6 +71,7 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
     except RecordError as exc:
         errors = record_errors(exc, file=fname, locate=lambda _f, loc: line_of(index, loc),
                                  cls=DesignError, model=RawDesign, format_name="design")
+        errors = [_route_key_hint(e) for e in errors]
         # a misspelt key explains the required field it leaves missing: name it first;
         # the others follow in the file's order, so one run names every invalid field
         errors.sort(key=lambda e: (e.problem != M.UNKNOWN_FIELD, e.line or 0))
@@ -101,6 +102,24 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
             raise InputError(exc.problem, field=source, value=exc.file,
                              hint=M.FOLDER_NAMED_BY.format(source=source)) from None
     return _build(raw, path, library, text, swaps or {}, index)
+
+
+def _route_key_hint(err: DesignError) -> DesignError:
+    """An unknown ``from`` or ``to`` outside a route (in a line's ``sections``, or on the
+    line itself) with the hint that they are a route's: the fields listed did not say;
+    a route written as a line of its own (``lines.route = [...]``) with where it goes."""
+    last = (err.field or "").rsplit(".", 1)[-1]
+    if err.problem == M.NOT_TABLE and (err.field or "").endswith(".lines.route"):
+        # lines.route = [...]: a line's name is its signal, the route goes inside it
+        return err.with_hint("a route belongs to one line: lines.sclk = { route = [...] }")
+    if err.problem == M.NOT_ARRAY and last == "route":
+        # route = { from = ..., to = ... }: one stretch, not in a list
+        return err.with_hint('a route is a list of stretches, even of one: route = [{ from = '
+                             '"U1", to = "U2", length = "2 cm", geometry = "NAME" }]')
+    if err.problem != M.UNKNOWN_FIELD or last not in ("from", "to") or ".route[" in err.field:
+        return err
+    return err.with_hint("from and to name the points of a route's stretches: write the "
+                         "stretches as route = [...] in place of sections or length")
 
 
 def _refuse_too_many_devices(data: dict, at) -> None:

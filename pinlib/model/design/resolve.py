@@ -107,9 +107,12 @@ class _Resolver:
                 self.checked.add(t.geometry)
             return (Section(t.length, geometries[t.geometry], loc=tuple(loc)),)
         if t.capacitance is None:
+            # a delay alone: its capacitance per length is what is missing beside it
             raise err(M.TRACE_NEEDS_GEOMETRY, loc + ("geometry",),
                       expected="geometry = \"NAME\" or capacitance = "
-                      "\"0.8 pF/cm\"")
+                      "\"0.8 pF/cm\"",
+                      hint="a delay per length goes with a capacitance per length"
+                      if t.delay is not None else None)
         return (Section(t.length, None, t.capacitance, t.delay, loc=tuple(loc)),)
 
     def _cable_section(self, t: RawTrace | RawSection, loc) -> Section:

@@ -37,9 +37,44 @@ def _root(parent: dict, x: str) -> str:
     return x
 
 
+def _joined_by(points: Sequence[tuple[str, str]], a: str, b: str) -> list[int]:
+    """The indices of the stretches among ``points`` that lead from ``a`` to ``b`` (they
+    form a tree, so one path), in order along it; empty when ``a`` is ``b``."""
+    came: dict[str, tuple[str, int] | None] = {a: None}
+    todo = [a]
+    while todo and b not in came:
+        p = todo.pop(0)
+        for i, (x, y) in enumerate(points):
+            for u, v in ((x, y), (y, x)):
+                if u == p and v not in came:
+                    came[v] = (p, i)
+                    todo.append(v)
+    path: list[int] = []
+    while came.get(b) is not None:
+        b, i = came[b]
+        path.append(i)
+    return path[::-1]
+
+
+def _loop_hint(points: Sequence[tuple[str, str]], i: int) -> str:
+    """What closes the loop at stretch ``i``: the point joined to itself, the same two
+    points written twice, or the earlier stretches that already join them."""
+    a, b = points[i]
+    fix = "a route is a tree: drop this stretch or end it at a new junction"
+    if a == b:
+        return f"a stretch from {a} to itself; {fix}"
+    path = _joined_by(points[:i], a, b)
+    if len(path) == 1:
+        return (f"route[{path[0]}] already joins {a} and {b} (the same stretch written "
+                f"twice?); {fix}")
+    way = [f"route[{k}] ({points[k][0]} to {points[k][1]})" for k in path]
+    return f"{a} and {b} are already joined by {', '.join(way[:-1])} and {way[-1]}; {fix}"
+
+
 def _check_tree(points: Sequence[tuple[str, str]], loc, err) -> None:
     """The stretches join their points into one tree: none closes a loop (a stretch whose
-    two points are already joined, itself included), none is left apart."""
+    two points are already joined, itself included; the hint names the stretches that
+    join them), none is left apart."""
     parent: dict[str, str] = {}
     for i, (a, b) in enumerate(points):
         for p in (a, b):
@@ -47,7 +82,7 @@ def _check_tree(points: Sequence[tuple[str, str]], loc, err) -> None:
         ra, rb = _root(parent, a), _root(parent, b)
         if ra == rb:
             raise err(M.ROUTE_CLOSES_LOOP, loc + (i, "to"), value=f"{a} to {b}",
-                      hint="a route is a tree: drop this stretch or end it at a new junction")
+                      hint=_loop_hint(points, i))
         parent[ra] = rb
     first = _root(parent, points[0][0])
     for i, (a, _b) in enumerate(points):
@@ -94,9 +129,15 @@ def route_of(rt: RawTrace, loc, devices: Sequence[Device], protocol: str, signal
     if rt.sections or rt.length is not None or rt.geometry or rt.capacitance or rt.part:
         raise err(M.ROUTE_OR_STRETCH, rloc)
     if len(route) > MAX_ROUTE_STRETCHES:  # before building any of them
+        n_on = sum(on_line(d, protocol, signal, n_lines) for d in devices)
+        hint = ("join stretches of one geometry between the same two devices"
+                if n_on <= MAX_ROUTE_STRETCHES + 1 else
+                # every device is a point of the route: it cannot hold them all
+                f"the line has {n_on:,} devices, and a route of {MAX_ROUTE_STRETCHES:,} "
+                f"stretches joins at most {MAX_ROUTE_STRETCHES + 1:,} points: give the line "
+                "as one stretch or as sections (every device at the far end) instead")
         raise err(M.TOO_MANY_ROUTE_STRETCHES, rloc, value=f"{len(route):,} stretches",
-                  expected=f"at most {MAX_ROUTE_STRETCHES:,} stretches",
-                  hint="join stretches of one geometry between the same two devices")
+                  expected=f"at most {MAX_ROUTE_STRETCHES:,} stretches", hint=hint)
     points = tuple((s.from_, s.to) for s in route)
     out = []
     for i, s in enumerate(route):
@@ -125,8 +166,11 @@ def route_of(rt: RawTrace, loc, devices: Sequence[Device], protocol: str, signal
             from pinlib.core.nearby import closest
 
             near = closest(d.ref, sorted(named - of_bus))
+            # a name with spaces around it is quoted: unquoted they did not show
+            shown = (f"'{near[0]}' (spaces around it)" if near and near[0] != near[0].strip()
+                     else near[0] if near else "")
             raise err(M.ROUTE_MISSES_DEVICE, rloc, value=d.ref,
                       expected=f"a stretch from or to {d.ref}",
-                      hint=(f"the route's point {near[0]} names no device of the bus "
+                      hint=(f"the route's point {shown} names no device of the bus "
                             f"(a junction): {d.ref} misspelt?") if near else None)
     return tuple(out), points

@@ -321,6 +321,7 @@ class _Html:
         from pinlib.core.labels import figure_label
         from pinlib.studies.compare import format_change, format_figure
         from pinlib.studies.compare.changes import shown_changes
+        from pinlib.studies.compare.figures import figure_value_text
 
         pct = f"{cl.threshold * 100:g} %"
         when = f" saved {cl.old_created}" if cl.old_created else ""
@@ -368,8 +369,8 @@ class _Html:
                        "Where", "Figure", "Before", "After", "Change")) + "</tr></thead><tbody>")
             for f in shown_changes(cl.figure_changes):
                 self.w(f"<tr><td>{_e(f.path)}</td><td>{_e(figure_label(f.name))}</td>"
-                       f'<td class="num">{_e(format_figure(f.old, f.unit))}</td>'
-                       f'<td class="num">{_e(format_figure(f.new, f.unit))}</td>'
+                       f'<td class="num">{_e(figure_value_text(f.name, f.old, f.unit))}</td>'
+                       f'<td class="num">{_e(figure_value_text(f.name, f.new, f.unit))}</td>'
                        f'<td class="num">{_e(format_change(f.change, f.old) or f.kind)}</td></tr>')
             self.w("</tbody></table></div>")
         if cl.part_changes:

@@ -94,8 +94,9 @@ def _stretch_text(section) -> str:
 DIAGRAM_WIDTH = 80
 
 
-def route_diagram(line, width: int = DIAGRAM_WIDTH) -> list[str]:
-    """A routed line as text, one row per path: the route's first point, then at each
+def route_diagram(line, width: int = DIAGRAM_WIDTH, start: str | None = None) -> list[str]:
+    """A routed line as text, one row per path: from ``start`` (the bus's controller;
+    the route's first point where it is None or not on the route), then at each
     point its first stretch onwards on the same row (``U1 ─2 cm─ T1 ─13 cm─ U3``; a cable
     stretch names its class, ``J1 ─25 cm ribbon-cable─ U3``), every
     other stretch from a point on a row of its own below, indented to that point
@@ -106,9 +107,10 @@ def route_diagram(line, width: int = DIAGRAM_WIDTH) -> list[str]:
     if not points:
         return []
     lengths = [_stretch_text(s) for s in line.sections]
+    root = start if any(start in pair for pair in points) else points[0][0]
     children: dict[str, list[tuple[str, str]]] = {}
-    seen = {points[0][0]}
-    todo = [points[0][0]]
+    seen = {root}
+    todo = [root]
     while todo:  # orient the tree away from its first point (each point once)
         p = todo.pop(0)
         for (a, b), length in zip(points, lengths, strict=True):
@@ -118,7 +120,7 @@ def route_diagram(line, width: int = DIAGRAM_WIDTH) -> list[str]:
                     children.setdefault(p, []).append((y, length))
                     todo.append(y)
     rows: list[str] = []
-    starts = [(points[0][0], "")]  # (the point a row goes on from, the row so far)
+    starts = [(root, "")]  # (the point a row goes on from, the row so far)
     while starts:
         point, row = starts.pop(0)
         lead = len(row) - len(row.lstrip(" "))
@@ -149,4 +151,6 @@ def _route_of(design_bus, place) -> list[str]:
     if design_bus is None or place[0] != "line":
         return []
     line = design_bus.lines.get(place[2])
-    return route_diagram(line) if line is not None else []
+    # from the controller, whichever way the route is written (as the engine reads it)
+    ctrl = next((d.ref for d in design_bus.devices if d.is_controller), None)
+    return route_diagram(line, start=ctrl) if line is not None else []

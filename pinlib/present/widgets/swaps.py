@@ -521,7 +521,9 @@ class SwapExplorer(_Panel):
             if c.status == "error":
                 by = c.error or ""
             else:
-                by = " ".join(str(wc[k]) for k in ("bus", "segment", "line") if wc.get(k))
+                # the line's signal in capitals, as pinlib check and candidates write it
+                by = " ".join(str(wc[k]).upper() if k == "line" else str(wc[k])
+                              for k in ("bus", "segment", "line") if wc.get(k))
                 by += " " + " ".join(x for x in (check_label(str(wc["id"])) if wc.get("id")
                                                  else "", str(wc.get("subject") or "")) if x)
             cells = [f'<td style="{NUM}">{i}</td>',

@@ -19,6 +19,7 @@ from pinlib.studies.compare.figures import (
     _checks,
     _is_number,
     figure_rows,
+    figure_value_text,
     format_change,
     format_figure,
 )
@@ -171,8 +172,8 @@ class FigureChange:
         """``path: Label old → new (change)``, the figure under its readable label."""
         change = format_change(self.change, self.old) if self.kind in ("moved", "same") else {
             "added": "(new)", "removed": "(gone)"}.get(self.kind, "")
-        return (f"{self.path}: {figure_label(self.name)} {format_figure(self.old, self.unit)} "
-                f"{_ARROW} {format_figure(self.new, self.unit)} {change}").rstrip()
+        old, new = (figure_value_text(self.name, v, self.unit) for v in (self.old, self.new))
+        return f"{self.path}: {figure_label(self.name)} {old} {_ARROW} {new} {change}".rstrip()
 
     def to_json(self) -> dict:
         return {"path": self.path, "name": self.name, "unit": self.unit, "old": self.old,

@@ -89,6 +89,16 @@ def _is_number(x) -> bool:
 format_figure = format_value
 
 
+def figure_value_text(name: str, value, unit: str) -> str:
+    """A named figure's value as text (:data:`format_figure`); the timing path that sets
+    the highest clock as the checks name it ("CIPO setup U2", not its id)."""
+    if name == "max_clock_limited_by" and isinstance(value, str):
+        from pinlib.core.labels import path_label
+
+        return path_label(value)
+    return format_figure(value, unit)
+
+
 def format_change(rel: float | None, old=None) -> str:
     """A relative change as text, never in exponent form: ``(+12.5 %)`` (three significant
     digits) up to ±999 %; a positive figure that grew further by its factor, ``(×187)``;

@@ -68,8 +68,12 @@ def positions(design, ref: str, *, field: str = "REF") -> list:
     out = [(b, d) for b in design.buses for d in b.devices if d.ref == ref]
     if not out:
         refs = sorted({d.ref for b in design.buses for d in b.devices})
+        # a junction of a route is a point of the board but no device: say which route
+        junction = next((f"{ref} is a junction of the route of {b.id}.{sig}, not a device; "
+                         for b in design.buses for sig, line in getattr(b, "lines", {}).items()
+                         if any(ref in pair for pair in line.route)), "")
         raise DesignError(M.NO_SUCH_REFERENCE, file=str(design.path or ""),
-                          field=field, value=ref, hint="devices: " + ", ".join(refs))
+                          field=field, value=ref, hint=junction + "devices: " + ", ".join(refs))
     return out
 
 
