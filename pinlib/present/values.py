@@ -6,7 +6,7 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 
-from pinlib.core.labels import figure_label, path_label, shown_figures
+from pinlib.core.labels import figure_label, shown_figures
 from pinlib.core.quantity import format_value
 from pinlib.model.result import Check, DesignResult, Figure, figure_text
 
@@ -26,10 +26,14 @@ def figure_cells(figures: Mapping[str, Figure]) -> list[tuple[str, str]]:
 
 
 def _text(name: str, f: Figure) -> str:
-    """A figure's value as text; the timing path that sets the highest clock as the checks
-    name it ("CIPO setup U2", not its id "cipo-setup U2", which stays in the JSON)."""
-    if name == "max_clock_limited_by" and isinstance(f.value, str):
-        return path_label(f.value)
+    """A figure's value as text (:func:`~pinlib.model.result.figure_text`); a text value
+    as :func:`~pinlib.studies.compare.figures.figure_value_text` gives it (the timing path
+    that sets the highest clock as the checks name it, "CIPO setup U2", not its id)."""
+    if isinstance(f.value, str):
+        # imported here: pinlib check reads the compare package only beside a snapshot
+        from pinlib.studies.compare.figures import figure_value_text
+
+        return figure_value_text(name, f.value, f.unit)
     return figure_text(f)
 
 

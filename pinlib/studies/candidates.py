@@ -233,7 +233,7 @@ class Ranking:
         for c in shown:
             by = (c.worst_check or {}).get("status_by")
             if by:
-                seen.setdefault(_where_text(by, True), c.status)
+                seen.setdefault(where_text(by, True), c.status)
         return [M.STATUS_SET_ELSEWHERE.format(status=st.upper(), check=where, ref=self.ref)
                 for where, st in seen.items()]
 
@@ -259,7 +259,7 @@ class Ranking:
             rows, blanks = [], {}
             for i, c in enumerate(shown, 1):
                 wc = c.worst_check
-                by = "—" if wc is None else _where_text(wc, multi)
+                by = "—" if wc is None else where_text(wc, multi)
                 row = [str(i), c.part + (" *" if c.current else ""),
                        c.status.upper() + ("†" if wc and wc.get("status_by") else ""),
                        c.margin_text(1), by if c.status != "error" else
@@ -432,7 +432,7 @@ def _summary_of(results: list[BusResult], places) -> tuple:
     return status, best, where, figures, sorted(margins)
 
 
-def _where_text(wc: dict, multi: bool) -> str:
+def where_text(wc: dict, multi: bool) -> str:
     """Where a check is, as the ranking names it: ``main-3v3 Noise margin low SDA``; a
     line's check with its signal in capitals, as ``pinlib check`` writes it, and its
     subject, the receiver (``SCLK Overshoot U3``: on a route each receiver has its own)."""

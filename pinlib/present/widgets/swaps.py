@@ -505,7 +505,7 @@ class SwapExplorer(_Panel):
     def _ranking_html(r, bus: str | None = None, top: int = TOP) -> str:
         """The best ``top`` candidates, with the figures of one bus of the position (the
         bus charted; the first when it is not one of the ranking's)."""
-        from pinlib.studies.candidates import FIGURES
+        from pinlib.studies.candidates import FIGURES, where_text
 
         rows_of = {b["bus"]: b for b in r.buses}
         shown = rows_of.get(bus) or (r.buses[0] if r.buses else None)
@@ -520,12 +520,8 @@ class SwapExplorer(_Panel):
             wc = c.worst_check or {}
             if c.status == "error":
                 by = c.error or ""
-            else:
-                # the line's signal in capitals, as pinlib check and candidates write it
-                by = " ".join(str(wc[k]).upper() if k == "line" else str(wc[k])
-                              for k in ("bus", "segment", "line") if wc.get(k))
-                by += " " + " ".join(x for x in (check_label(str(wc["id"])) if wc.get("id")
-                                                 else "", str(wc.get("subject") or "")) if x)
+            else:  # as the ranking names it (the line's signal in capitals)
+                by = where_text(wc, multi=True) if c.worst_check else ""
             cells = [f'<td style="{NUM}">{i}</td>',
                      f'<td style="{CELL}"><code>{e(c.part)}</code>'
                      + (" (now)" if c.current else "") + "</td>",
