@@ -266,9 +266,8 @@ class LineTable:
                 margin[j] = t.check_margin(value[j])   # the engine's term_check
                 if t.margin_unit is None:
                     by_margin.append(j)
-                else:  # a slack in seconds passes from 0 up; one taken as 0 warns below
-                    status[j] = np.minimum(status_codes(margin[j], 0.0),
-                                           2 if t.recorded else 1)
+                else:  # a slack in seconds: the engine's term_check rule
+                    status[j] = t.slack_codes(margin[j])
         if by_margin:
             rows = np.array(by_margin)
             status[rows] = status_codes(margin[rows], self._warn)

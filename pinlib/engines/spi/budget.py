@@ -135,6 +135,17 @@ class Term:
             return min_margin(available, self.required)
         return np.asarray(available, dtype=float) - float(self.required)
 
+    def slack_codes(self, slack):
+        """The status codes (:data:`pinlib.model.result.STATUS_CODES`) of a slack in
+        seconds (:attr:`margin_unit` ``"s"``): it passes from 0 up (no fraction of the
+        limit to warn within) and fails below it, or warns where the 0 was taken for a
+        requirement the part does not record (no published limit stands behind it);
+        elementwise over arrays.  The one rule of the engine's check and the Monte Carlo
+        tables. [1]"""
+        from pinlib.model.result import status_codes
+
+        return np.minimum(status_codes(slack, 0.0), 2 if self.recorded else 1)
+
     def available(self, period):
         """Available time at a clock period. [s]"""
         return self.a * np.asarray(period, dtype=float) + self.b

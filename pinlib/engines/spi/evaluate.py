@@ -19,7 +19,7 @@ from pinlib.engines.spi.modes import (
     _fmt,
 )
 from pinlib.model.design import Bus, Design
-from pinlib.model.result import BusResult, Check, check_max, check_min
+from pinlib.model.result import STATUSES, BusResult, Check, check_max, check_min
 
 _TERM_TEXT = {
     "copi-setup": ("COPI setup at {ref}", "available setup {avail} against t_setup {req}"),
@@ -157,15 +157,12 @@ def term_check(t: Term, clock: float, warn: float, mode: int) -> Check:
         return check_min(t.id, avail, t.required, "s", source, message, warn_margin=warn,
                          subject=t.subject, details=details)
     # A requirement of 0 (recorded, or taken for one the part does not record): a
-    # fraction of it means nothing, so the margin is the slack in seconds, which passes
-    # from 0 up (no fraction of the limit to warn within) and fails below it
+    # fraction of it means nothing, so the margin is the slack in seconds
     slack = float(t.check_margin(avail))
-    status = "pass" if slack >= 0 else "fail"
+    status = STATUSES[int(t.slack_codes(slack))]
     fix = None
-    if status == "fail" and not t.recorded:
-        # no published limit to fail against: a part may well accept less than 0
+    if status == "warn":  # short of a 0 the part does not record: no limit to fail
         field = next(k for k in _REQUIRED_FIELDS if k in t.parts)
-        status = "warn"
         fix = (f"record the part's {_REQUIRED_FIELDS[field]} from its datasheet, or "
                "give the path more time")
         message += (f"; {_fmt(-slack, 's')} short of 0, which is taken for a requirement "
