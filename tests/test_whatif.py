@@ -767,3 +767,40 @@ def test_corner_and_monte_carlo_rows_name_checks_by_their_labels(capsys, monkeyp
     assert "sensors/main-3v3 SCL Rise time" in study and "rise-time" not in study
     assert not any(ln.rstrip().endswith(" at") for ln in study.splitlines())
     assert "    PASS  " in study and "    pass  " not in study
+
+
+def test_sensitivities_are_standardized_coefficients_read_in_blocks(monkeypatch):
+    from types import SimpleNamespace
+
+    from pinlib.studies.whatif import sensitivity
+
+    rng = np.random.default_rng(20261204)
+    n = 20_011  # not a multiple of a block: the last block is short
+    u = rng.random((n, 3))
+    params = [SimpleNamespace(name=x) for x in ("a", "b", "c")]
+    linear = 2.0 * u[:, 0] - u[:, 1]
+    steady = np.full(n, 0.1)  # equal on every board; its mean is 0.1 only to rounding
+    partly = linear.copy()
+    partly[::5] = np.nan       # fitted on its finite boards
+    got = sensitivity._sensitivities(u, [linear, steady, None, partly], params)
+    # derived: least squares recovers y = 2a − b exactly, so each standardized coefficient
+    # is the coefficient times the draw's standard deviation over the margin's (on these
+    # boards), c's is 0 and R² is 1; for independent draws of equal variance they tend to
+    # 2/√5 and −1/√5
+    (names, r2) = got[0]
+    sd_y = linear.std()
+    assert dict(names) == pytest.approx({"a": 2 * u[:, 0].std() / sd_y,
+                                         "b": -u[:, 1].std() / sd_y}, abs=1e-9)
+    assert dict(names) == pytest.approx({"a": 2 / math.sqrt(5), "b": -1 / math.sqrt(5)},
+                                        abs=0.01)
+    assert r2 == pytest.approx(1.0, abs=1e-9)
+    assert got[1] == ([], None)  # a margin that does not vary has no fit, not R² 0
+    assert got[2] == ([], None)  # a yes/no check
+    assert dict(got[3][0]) == pytest.approx(dict(names), abs=0.01)
+    # the blocks only order the sums: one board a block gives the same fit
+    monkeypatch.setattr(sensitivity, "_BLOCK", 1)
+    again = sensitivity._sensitivities(u[:2000], [linear[:2000], steady[:2000]], params)
+    monkeypatch.setattr(sensitivity, "_BLOCK", 4096)
+    whole = sensitivity._sensitivities(u[:2000], [linear[:2000], steady[:2000]], params)
+    assert dict(again[0][0]) == pytest.approx(dict(whole[0][0]), rel=1e-12)
+    assert again[1] == whole[1] == ([], None)
