@@ -800,7 +800,7 @@ def test_sensitivities_are_standardized_coefficients_read_in_blocks(monkeypatch)
     # the blocks only order the sums: one board a block gives the same fit
     monkeypatch.setattr(sensitivity, "_BLOCK", 1)
     again = sensitivity._sensitivities(u[:2000], [linear[:2000], steady[:2000]], params)
-    monkeypatch.setattr(sensitivity, "_BLOCK", 4096)
+    monkeypatch.setattr(sensitivity, "_BLOCK", 16384)
     whole = sensitivity._sensitivities(u[:2000], [linear[:2000], steady[:2000]], params)
     assert dict(again[0][0]) == pytest.approx(dict(whole[0][0]), rel=1e-12)
     assert again[1] == whole[1] == ([], None)
