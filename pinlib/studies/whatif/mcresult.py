@@ -127,8 +127,8 @@ class McCheck:
             return "the same margin on every board"
         if self.r2 is None:
             return "too few boards to fit"
-        return (f"no parameter's coefficient reaches {SENSITIVITY_FLOOR:g} "
-                f"(R² {self.r2:.2f})")
+        return (f"no parameter's coefficient reaches {SENSITIVITY_FLOOR:g} clear of the "
+                f"fit's noise (R² {self.r2:.2f})")
 
     def to_json(self) -> dict:
         q = self.margin_quantiles()

@@ -7,8 +7,14 @@ import numpy as np
 
 from pinlib.studies.whatif.tolerances import Parameter
 
-#: A parameter counts as a sensitivity when its standardized coefficient is this large.
+#: A parameter counts as a sensitivity when its standardized coefficient is this large
+#: (common practice, no source) ...
 SENSITIVITY_FLOOR = 0.05
+#: ... and this many of its standard errors from 0: a coefficient within the noise of a
+#: fit on few boards, of a margin the parameters explain only in part (a supply range
+#: is V-shaped in its rail), is chance, not a sensitivity (a t-statistic of 3, common
+#: practice, no source).
+SIGNIFICANCE = 3.0
 
 #: Boards the fit reads at a time.  Each margin is read from its own column once, a
 #: block of every margin at a time (about 8 MB at 60 margins), and each block is one small
@@ -78,13 +84,21 @@ def _fit(zz: np.ndarray, cols: list, names: list) -> list:
     gram = zz.T @ zz / rows
     beta = np.linalg.solve(gram, cross)
     r2 = (beta * cross).sum(axis=0)   # explained variance of a unit-variance margin
+    # each coefficient's standard error (least squares: the residual variance over the
+    # degrees of freedom, times the diagonal of the inverse of X'X): a unit-variance
+    # margin leaves 1 − R² unexplained on each board
+    free = rows - zz.shape[1] - 1
+    spread = np.sqrt(np.maximum(1.0 - r2, 0.0)[None, :] / free
+                     * np.diag(np.linalg.inv(gram))[:, None])
     res, g = [], 0
     for ok in good:
         if not ok:
             res.append(None)
             continue
-        ranked = sorted(zip(names, beta[:, g].tolist(), strict=True), key=lambda t: -abs(t[1]))
-        res.append(([(nm, float(b)) for nm, b in ranked if abs(b) >= SENSITIVITY_FLOOR],
+        ranked = sorted(zip(names, beta[:, g].tolist(), spread[:, g].tolist(), strict=True),
+                        key=lambda t: -abs(t[1]))
+        res.append(([(nm, float(b)) for nm, b, se in ranked
+                     if abs(b) >= SENSITIVITY_FLOOR and abs(b) >= SIGNIFICANCE * se],
                     float(r2[g])))
         g += 1
     return res
