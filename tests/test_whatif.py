@@ -832,3 +832,57 @@ def test_a_sensitivity_within_the_fits_noise_is_not_named():
     # derived: each standard error is sqrt((1 − R²)/(n − k − 1)) on nearly orthogonal
     # draws, about 0.019 here: 3 of them, 0.057, is above both chance coefficients
     assert 3 * math.sqrt((1 - r2) / (n - 15)) > max(abs(beta[7]), abs(beta[8]))
+
+
+def test_a_slack_in_seconds_that_warns_or_fails_is_not_hidden_among_the_more():
+    # Margins in a unit sort after every fraction (they are never ranked against them):
+    # with a dozen passing fractions ahead, a warning (Monte Carlo) or failing (corners)
+    # CIPO setup slack in seconds fell into "… 1 more" (invented rows)
+    from pinlib.studies.whatif.cornersearch import CornerCheck, CornersResult
+    from pinlib.studies.whatif.mcresult import McCheck, McResult
+    from pinlib.studies.whatif.yields import Yield
+
+    def mc(i, margins, warns=0, unit=None):
+        return McCheck(f"b c{i}", "b", "b", None, f"c{i}", "", "", "pass", 0.5,
+                       Yield(4, 4, (0.5, 1.0)), margins=np.asarray(margins, dtype=float),
+                       warns=warns, fails=0, margin_unit=unit)
+
+    rows = [mc(i, [0.2 + i / 100, 0.3, 0.4, 0.5]) for i in range(12)]
+    rows.append(mc(99, [-2e-9, -1e-9, -1e-9, -1e-9], warns=4, unit="s"))
+    text = McResult("d", 4, 1, "uniform", [], rows, {}, None, np.zeros((4, 0))).format_text()
+    listed = [ln.split()[1] for ln in text.splitlines() if ln.startswith("    b ")]
+    assert listed[0] == "C99" and len(listed) == 12   # first, not in the one more
+    assert "… 1 more that varies" in text
+
+    def corner(i, status, margin, unit=None):
+        return CornerCheck(f"b c{i}", "b", "b", None, f"c{i}", "", "", margin, 0.0, 1.0,
+                           status, [("rail", "+", 0.1)], margin_unit=unit)
+
+    crows = [corner(i, "pass", 0.2 + i / 100) for i in range(12)]
+    crows.append(corner(99, "fail", -1e-9, "s"))
+    ctext = CornersResult("d", crows, {}, {}).format_text()
+    listed = [ln.split()[:3] for ln in ctext.splitlines()
+              if ln.startswith(("    FAIL", "    PASS"))]
+    assert listed[0] == ["FAIL", "b", "C99"] and len(listed) == 12
+
+
+def test_a_margin_that_moves_by_rounding_only_does_not_vary():
+    # a level check whose value and limit both follow one rail: (0.9 − 0.63)/0.63 of
+    # the rail on every board, its last bits following the rail by rounding (invented)
+    from types import SimpleNamespace
+
+    from pinlib.studies.whatif import sensitivity
+    from pinlib.studies.whatif.mcresult import McCheck
+    from pinlib.studies.whatif.yields import Yield
+
+    rng = np.random.default_rng(3)
+    u = rng.random((5000, 2))
+    rail = 3.3 * (0.95 + 0.1 * u[:, 0])
+    margin = (0.9 * rail - 0.63 * rail) / (0.63 * rail)
+    assert margin.max() > margin.min()           # it does move, by a unit in the last place
+    params = [SimpleNamespace(name="rail 3.3 V"), SimpleNamespace(name="other")]
+    assert sensitivity._sensitivities(u, [margin], params) == [([], None)]
+    row = McCheck("b x", "b", "b", None, "x", "", "", "pass", 0.43, Yield(5000, 5000,
+                  (0.99, 1.0)), margins=margin)
+    assert not row.varies and row.sensitivity_text() == "the same margin on every board"
+    assert sensitivity.beyond_rounding(0.4, 0.4 + 1e-9)   # a real spread still varies

@@ -21,7 +21,7 @@ from pinlib.engines.memo import run_scope
 from pinlib.engines.opendrain import batch as ob
 from pinlib.engines.ppcorners import corner_rows
 from pinlib.model.design import Design
-from pinlib.model.result import json_number, margin_order
+from pinlib.model.result import STATUSES, json_number, margin_order
 from pinlib.studies.whatif.checknames import _names, _not_sampled
 from pinlib.studies.whatif.mcresult import _fmt_margin, find_check
 from pinlib.studies.whatif.tolerances import (
@@ -109,16 +109,21 @@ class CornersResult:
                 "checks": [c.to_json() for c in self.checks], "notes": list(self.notes)}
 
     def format_text(self, limit: int | None = 12) -> str:
-        """The corners for people: the ``limit`` lowest margins (None for all)."""
+        """The corners for people: the ``limit`` worst checks (None for all): failing, then
+        warning, then passing, each by its lowest margin."""
         lines = ["Corners: every toleranced parameter at one end or the other; the worst corner "
                  "of each check and the parameters that set it"]
         for bus, method in self.methods.items():
             lines.append(f"  bus {bus}: {method}")
         rows = [c for c in self.checks if c.corner]
-        rows.sort(key=lambda c: margin_order(c.margin, c.margin_unit, -math.inf))
+        # the worst status first: a margin in a unit sorts after every fraction, and a
+        # failing slack in seconds must not fall among the "more" below passing rows
+        rows.sort(key=lambda c: (-STATUSES.index(c.status),
+                                 *margin_order(c.margin, c.margin_unit, -math.inf)))
         shown = rows[:limit] if limit else rows
         if shown:
-            lines.append("  lowest margins at their worst corners:")
+            lines.append("  checks at their worst corners, failing and warning first, then "
+                         "by the lowest margin:")
             w = max(len(c.label) for c in shown)
             for c in shown:
                 # a parameter and its end, and "at" with the first, wrap as one word

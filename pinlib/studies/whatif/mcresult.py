@@ -10,7 +10,7 @@ import numpy as np
 from pinlib.core.labels import sampled_check_label
 from pinlib.core.valueclass import value_class
 from pinlib.model.result import json_number, margin_order, signed_margin_text
-from pinlib.studies.whatif.sensitivity import SENSITIVITY_FLOOR
+from pinlib.studies.whatif.sensitivity import SENSITIVITY_FLOOR, beyond_rounding
 from pinlib.studies.whatif.tally import MarginHistogram
 from pinlib.studies.whatif.tolerances import Parameter
 from pinlib.studies.whatif.yields import CONFIDENCE, Yield, _pct
@@ -100,9 +100,10 @@ class McCheck:
         if self.margins is None:
             return False
         if not self.complete:
-            return self.low is not None and self.high is not None and self.high > self.low
+            return (self.low is not None and self.high is not None
+                    and bool(beyond_rounding(self.low, self.high)))
         m = self.margins[np.isfinite(self.margins)]
-        return bool(m.size) and bool(m.max() > m.min())
+        return bool(m.size) and bool(beyond_rounding(m.min(), m.max()))
 
     def margin_quantiles(self, qs=(0.0, 0.01, 0.5)) -> list[float | None]:
         """Quantiles of the finite margins: of every board when :attr:`margins` holds
@@ -205,12 +206,16 @@ class McResult:
         for bus, y in self.buses.items():  # a coupling's id holds "<-"
             lines.append(f"  {'coupling' if '<-' in bus else 'bus'} {bus}: {_pct(y)}")
         rows = [c for c in self.checks if c.varies or c.passes.passes < c.passes.n]
-        rows.sort(key=lambda c: (c.passes.passes, *margin_order(_low(c), c.margin_unit)))
+        # the fewest passing boards, then the most boards that warn (a margin in a unit
+        # sorts after every fraction: a warning slack in seconds must not fall among the
+        # "more" below rows that never warn), then the lowest margin
+        rows.sort(key=lambda c: (c.passes.passes, -(c.warns or 0),
+                                 *margin_order(_low(c), c.margin_unit)))
         shown = rows[:limit] if limit else rows
         if shown:
-            lines.append("  checks with the fewest passing boards and the lowest margins (pass "
-                         "fraction, a warning passing; lowest margin; boards that warn; "
-                         "most sensitive to):")
+            lines.append("  checks with the fewest passing boards, the most that warn and the "
+                         "lowest margins (pass fraction, a warning passing; lowest margin; "
+                         "boards that warn; most sensitive to):")
             w = max(len(c.label) for c in shown)
             for c in shown:
                 sens = c.sensitivity_text()
@@ -221,8 +226,9 @@ class McResult:
                              f"min {_fmt_margin(_low(c), c.margin_unit):>8}  "
                              f"{warned}{sens}")
             if len(shown) < len(rows):
-                lines.append(f"    … {len(rows) - len(shown)} more that vary (JSON lists every "
-                             "check)")
+                more = len(rows) - len(shown)
+                lines.append(f"    … {more} more that {'varies' if more == 1 else 'vary'} "
+                             "(JSON lists every check)")
         steady = len(self.checks) - len(rows)
         if steady:
             lines.append(f"  {steady} other checks pass on every board with the same margin")
