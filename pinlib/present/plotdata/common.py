@@ -16,6 +16,11 @@ _LOAD_POINTS = 61
 _WAVE_POINTS = 700
 _SETTLE_BAND = 0.02     # a trace has settled once it stays within 2 % of its swing
 _WINDOW_PAD = 1.3       # the waveform window runs 30 % past the last trace's settling
+# Ringing that outlasts the solver's record (a route's branches ringing against each other
+# in the lossless model, a few % of the swing to the end): a trace counts as settled once
+# it stays within this multiple of the largest excursion of the record's last fifth.
+_RING_TAIL = 0.5
+_RING_MARGIN = 1.5
 
 
 # =========================================================================== helpers
