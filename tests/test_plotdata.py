@@ -272,3 +272,26 @@ def test_a_line_that_settles_keeps_its_window(demo):
             settled = max(settled, float(wave.t[np.flatnonzero(off)[-1] + 1]))
     assert w.t[-1] == pytest.approx(1.3 * settled, rel=1e-12)
     assert not any(n.startswith("ringing of up to") for n in w.notes)
+
+
+def test_a_star_of_eight_draws_each_receiver_in_its_own_colour_and_dash(tmp_path):
+    # invented test data (the star above): 8 receivers, past the 7 series colours; two
+    # of them were drawn alike
+    design = _star_design(tmp_path, 8)
+    w = plotdata.waveform_data(design.bus("rst"), design, "reset")
+    receivers = [f"U{i}" for i in range(2, 10)]
+    assert set(w.groups.values()) == {f"at {r}" for r in receivers}
+    assert all(w.groups[f"{e} at {r}"] == f"at {r}" for e in ("rise", "fall")
+               for r in receivers)
+    spec = charts.waveforms(w.t, w.traces, v_il=w.v_il, v_ih=w.v_ih, vdd=w.vdd,
+                            groups=w.groups).to_dict()
+    line = next(layer for layer in spec["layer"] if layer["mark"]["type"] == "line")
+    colour = dict(zip(line["encoding"]["stroke"]["scale"]["domain"],
+                      line["encoding"]["stroke"]["scale"]["range"], strict=True))
+    dash = dict(zip(line["encoding"]["strokeDash"]["scale"]["domain"],
+                    map(tuple, line["encoding"]["strokeDash"]["scale"]["range"]), strict=True))
+    pairs = {(colour[f"at {r}"], dash[f"at {r}"]) for r in receivers}
+    assert len(pairs) == 8
+    # a line without a route keeps a legend entry per trace
+    demo = load_design(DEMO)
+    assert plotdata.waveform_data(demo.bus("flash"), demo, "sclk").groups == {}

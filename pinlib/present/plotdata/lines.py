@@ -112,6 +112,12 @@ class WaveformData:
         The bus's checks are at the worst corner of its tolerances (supply, lengths,
         capacitances: :func:`pinlib.engines.pushpull.evaluate_bus`) while the traces
         are the nominal board; a note says so. [1]
+    groups : dict of str to str
+        On a route's chart of every receiver, the legend entry of each trace: its
+        receiver (and corner), ``"at U2"`` for ``"rise at U2"`` and ``"fall at U2"``,
+        so that the two edges at one receiver share its colour and dash and the legend
+        names each receiver once (:func:`pinlib.present.charts.waveforms`); empty
+        otherwise (each trace its own entry). [1]
     """
 
     bus: str
@@ -128,6 +134,7 @@ class WaveformData:
     notes: list = field(default_factory=list)
     si_corner: str = "slow"
     checks_at_worst: bool = False
+    groups: dict = field(default_factory=dict)
 
 
 # =========================================================================== push-pull
@@ -399,5 +406,9 @@ def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None =
     vdd = float(case.v_high)
     over = {n: float(w.overshoot) for n, w in waves.items() if w.edge == "rise"}
     under = {n: float(w.undershoot) for n, w in waves.items() if w.edge == "fall"}
+    # every receiver of a route: one legend entry per receiver (and corner), its rise and
+    # fall in one colour and dash (a route holds up to 64 receivers)
+    groups = ({n: n.split(" ", 1)[1] for n in traces}
+              if la.net is not None and receiver is None else {})
     return WaveformData(bus.id, signal, ref, t, traces, v_il, v_ih, vdd, rx, over, under,
-                        notes, "fast" if fast else "slow", board is not None)
+                        notes, "fast" if fast else "slow", board is not None, groups)
