@@ -247,9 +247,9 @@ def _window_end(waves) -> tuple[float, float]:
     :data:`_SETTLE_BAND` of its swing of its final level; or, for a trace that still
     rings at the end of its record (a star's branches ringing against each other in the
     lossless model keep a few % of the swing to the end), within :data:`_RING_MARGIN`
-    times the largest excursion of its record's last :data:`_RING_TAIL`: it has settled
-    into the ringing it keeps, and the axis shows the edges rather than the solver's
-    whole record.  Returns the end [s] and the largest such excursion as a fraction of
+    times the largest excursion over the last part of its record (:data:`_RING_TAIL`, the
+    second half): it has settled into the ringing it keeps, and the axis shows the edges
+    rather than the solver's whole record.  Returns the end [s] and the largest such excursion as a fraction of
     the swing (0 when every trace settles within the band in its record) [1].
     """
     end, ringing = 0.0, 0.0
@@ -389,10 +389,10 @@ def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None =
         notes.append(board)
     end, ringing = _window_end(list(waves.values()))
     if ringing > 0:
-        notes.append(f"ringing of up to {ringing * 100:.1f} % of the swing lasts to the end "
-                     "of the solved record (the line is solved lossless; loss on a real "
-                     "board damps it): the time axis ends once the edges have settled into "
-                     "it")
+        notes.append(f"ringing of up to {ringing * 100:.1f} % of the swing remains through "
+                     "the second half of the solved record (the line is solved lossless; "
+                     "loss on a real board damps it): the time axis ends once the edges "
+                     "have settled into it")
     grid = [np.linspace(0.0, end, max(int(points), 2))]
     for w in waves.values():
         for k in (int(np.argmax(w.v)), int(np.argmin(w.v))):
