@@ -253,6 +253,85 @@ def test_a_series_keeps_its_colour_whichever_others_are_drawn():
     assert a == charts.series_colours(["U1 rise", "U1 fall"]) and len(set(a)) == 2
 
 
+def _entry_styles(chart) -> dict:
+    """Each legend entry of a waveforms chart with its (colour, dash) as drawn."""
+    for layer in _layers(chart):
+        enc = layer["encoding"]
+        paint = enc.get("stroke") or enc.get("color") or {}
+        if layer["mark"]["type"] == "line" and "scale" in paint:
+            colours = dict(zip(paint["scale"]["domain"], paint["scale"]["range"], strict=True))
+            dash = enc.get("strokeDash", {}).get("scale")
+            dashes = (dict(zip(dash["domain"], map(tuple, dash["range"]), strict=True))
+                      if dash else {})
+            return {k: (c, dashes.get(k, (1, 0))) for k, c in colours.items()}
+    raise AssertionError("no line layer")
+
+
+def _route_traces(receivers: int, corners: bool = False):
+    """Invented test data: a rise and a fall at each receiver U2... of a route (and at
+    each corner), named and grouped as plotdata.waveform_data names a route's traces."""
+    t = np.linspace(0.0, 20.0, 41) * NANO
+    traces, groups = {}, {}
+    for i in range(2, receivers + 2):
+        for corner in ((" (slow corner)", " (fast corner)") if corners else ("",)):
+            up = 3.3 * (1 - np.exp(-t / ((1 + 0.1 * i) * NANO)))
+            for edge, v in (("rise", up), ("fall", 3.3 - up)):
+                traces[f"{edge} at U{i}{corner}"] = v
+                groups[f"{edge} at U{i}{corner}"] = f"at U{i}{corner}"
+    return t, traces, groups
+
+
+# derived: a route of MAX_ROUTE_STRETCHES stretches joins at most one point more, one of
+# them the driver: 64 receivers on one chart, two entries each with a fast corner
+@pytest.mark.parametrize(("receivers", "corners"), [(8, False), (12, False), (64, False),
+                                                    (64, True)])
+def test_every_receiver_of_a_route_chart_has_its_own_colour_and_dash(receivers, corners):
+    # past 7 receivers two of them were drawn in one colour, with nothing to tell them
+    # apart (the series colours number 7)
+    from pinlib.core.worklimits import MAX_ROUTE_STRETCHES
+
+    assert MAX_ROUTE_STRETCHES == 64  # the largest count above
+    t, traces, groups = _route_traces(receivers, corners)
+    chart = charts.waveforms(t, traces, v_il=0.99, v_ih=2.31, vdd=3.3, groups=groups)
+    styles = _entry_styles(chart)
+    entries = list(dict.fromkeys(groups.values()))
+    assert len(entries) == receivers * (2 if corners else 1)
+    pairs = [styles[e] for e in entries]
+    assert len(set(pairs)) == len(pairs)
+    # nor is a receiver drawn like a fixed entry (band, thresholds, VDD)
+    fixed = {styles[k] for k in styles if k not in entries}
+    assert fixed.isdisjoint(pairs)
+    # every receiver in the series colours, never a status colour; solid for the first 7
+    assert {c for c, _ in pairs} <= set(charts.SERIES)
+    assert [d for _, d in pairs[:7]] == [(1, 0)] * 7 and pairs[7][1] != (1, 0)
+    # the legend names each receiver once, all of them (Vega lists 30 unless told), and
+    # draws its entries as lines so that the dash shows
+    legend = next(layer["encoding"]["stroke"]["legend"] for layer in _layers(chart)
+                  if "stroke" in layer["encoding"])
+    assert legend["symbolType"] == "stroke"
+    assert legend.get("symbolLimit", 30) >= len(styles)
+    # the rise and the fall at one receiver are drawn apart, in its style
+    line = next(layer for layer in _layers(chart) if layer["mark"]["type"] == "line")
+    assert line["encoding"]["detail"]["field"] == "trace"
+
+
+def test_a_chart_within_the_series_colours_keeps_its_solid_lines():
+    t, traces, groups = _route_traces(3, corners=True)  # 6 entries: 7 colours suffice
+    chart = charts.waveforms(t, traces, v_il=0.99, v_ih=2.31, vdd=3.3, groups=groups)
+    styles = _entry_styles(chart)
+    assert all(d == (1, 0) for k, (_, d) in styles.items() if k.startswith("at U"))
+    assert len({c for k, (c, _) in styles.items() if k.startswith("at U")}) == 6
+    assert not any("strokeDash" in layer["encoding"] for layer in _layers(chart))
+
+
+def test_series_styles_pairs_stay_distinct_past_every_table():
+    # beyond the dash table the patterns are made; still one pair per name
+    names = [f"s{i}" for i in range(400)]
+    pairs = charts.series_styles(names, [charts.ORANGE, charts.REDDISH_PURPLE, charts.INK])
+    assert len(set(pairs)) == 400
+    assert len({charts.dash_pattern(k) for k in range(60)}) == 60
+
+
 # --------------------------------------------------------------------------- scaling
 @pytest.mark.parametrize(("values", "unit", "log", "factor", "shown"), [
     ([10 * PICO, 400 * PICO], "F", False, 1 / PICO, "pF"),

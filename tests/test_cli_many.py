@@ -158,6 +158,32 @@ def test_the_design_schema_refuses_what_the_loader_refuses(change, where):
     assert where in [list(e.absolute_path) for e in errors]
 
 
+def test_the_design_schema_describes_a_route_and_bounds_it_as_the_loader_does():
+    # a route had no description and no size limit in the schema: an editor let a file
+    # of 100 stretches through that the loader refuses (pinlib.core.worklimits)
+    from pinlib.core.worklimits import MAX_ROUTE_STRETCHES
+    from pinlib.model.designschema import design_json_schema
+
+    defs = design_json_schema()["$defs"]
+    route = defs["RawTrace"]["properties"]["route"]
+    assert route["maxItems"] == MAX_ROUTE_STRETCHES
+    assert route["minItems"] == 1  # an empty route is refused (ROUTE_EMPTY)
+    assert "stretches between named points" in route["description"]
+    assert f"1 to {MAX_ROUTE_STRETCHES} stretches" in route["description"]
+    item = defs[route["items"]["$ref"].rsplit("/", 1)[1]]
+    assert item["description"].startswith("One stretch of a routed line between two points")
+    for end in ("from", "to"):
+        assert "junction" in item["properties"][end]["description"]
+    # the schema refuses what the loader refuses, and takes the largest route it takes
+    one = {"from": "U1", "to": "U2", "length": "1 cm", "geometry": "g"}
+    for n, refused in ((MAX_ROUTE_STRETCHES, False), (MAX_ROUTE_STRETCHES + 1, True),
+                       (0, True)):
+        data = {"format": "pinlib.design/1", "title": "t",
+                "bus": [{"id": "b", "protocol": "spi", "lines": {"sclk": {"route": [one] * n}}}]}
+        where = [list(e.absolute_path) for e in _validator("design").iter_errors(data)]
+        assert (["bus", 0, "lines", "sclk", "route"] in where) == refused, n
+
+
 def test_schema_command_prints_and_writes(tmp_path, capsys):
     assert main(["schema", "design"]) == 0
     out = json.loads(capsys.readouterr().out)

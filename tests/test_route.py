@@ -399,6 +399,61 @@ def test_an_open_stub_is_named_in_the_line_notes(tmp_path):
     assert not [n for n in _line(bus, "sclk").notes if "open stub" in n]
 
 
+_I2C_U9 = """
+[[bus]]
+id = "sensors"
+protocol = "i2c"
+supply = "3.3 V"
+trace = { length = "5 cm", geometry = "g" }
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U9", part = "eeprom-i2c" },
+]
+"""
+
+
+def _alike_notes(bus):
+    return [n for n in _line(bus, "sclk").notes if "named like a device" in n]
+
+
+def test_a_mid_route_junction_named_like_a_missing_device_is_noted(tmp_path):
+    # invented test data.  "U7" joins U1 to U2 and U3: it names no device of the design,
+    # so it was read as a junction without a word, though it reads as a chip the bus
+    # forgot to list (its stub end would have had the open-stub note; a mid-route point
+    # had none)
+    _, bus = _check(HEAD + "lines.sclk = { route = [\n  " + ",\n  ".join(
+        [_stretch("U1", "U7"), _stretch("U7", "U2"), _stretch("U7", "U3")]) + "\n] }\n",
+        tmp_path)
+    assert _alike_notes(bus) == [
+        "a junction named like a device: U7 names no device of the design, so nothing "
+        "loads the line there; if a device sits there, list it on the bus with a pin on "
+        "sclk"]
+    # a junction named as junctions are (other letters than the line's devices, or no
+    # digits) is not noted: the design file's own examples, T1 and S
+    for name in ("T1", "S", "TP3", "N1", "J9"):
+        _, bus = _check(HEAD + "lines.sclk = { route = [\n  " + ",\n  ".join(
+            [_stretch("U1", name), _stretch(name, "U2"), _stretch(name, "U3")])
+            + "\n] }\n", tmp_path)
+        assert _alike_notes(bus) == [], name
+
+
+def test_a_point_named_like_a_device_but_for_its_case_is_noted(tmp_path):
+    # invented test data: "u9" is U9 of the I2C bus written in lower case (U9 itself is
+    # refused, as a device of another bus); it was read as a junction silently
+    path = tmp_path / "d.toml"
+    path.write_text(HEAD + "lines.sclk = { route = [\n  " + ",\n  ".join(
+        [_stretch("U1", "U2"), _stretch("U2", "u9"), _stretch("u9", "U3")]) + "\n] }\n"
+        + _I2C_U9, encoding="utf-8")
+    design = load_design(path)
+    assert design.buses[0].lines["sclk"].look_alikes == (("u9", "U9"),)
+    line = _line(check_design(design).buses[0], "sclk")
+    assert [n for n in line.notes if "named like a device" in n] == [
+        "a point of the route named like a device but for case or spaces: 'u9' (like U9); "
+        "a point is a device only by its exact reference designator, so it is read as a "
+        "junction with nothing on it; if the device sits there, write its reference as "
+        "the bus lists it"]
+
+
 def test_the_stretches_without_a_delay_are_named(tmp_path):
     # one stretch of the route given a capacitance without its delay, another of 0 cm:
     # the note said "a section without a delay" and left the user to find which

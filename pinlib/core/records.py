@@ -92,14 +92,18 @@ class Convert:
 
 class Rule:
     """Annotated metadata: a pattern (matched against the whole text), text lengths,
-    bounds on a number (``ge``, ``le``) and a description for the JSON Schema."""
+    bounds on a number (``ge``, ``le``), and for the JSON Schema only a description and
+    an array's item counts (``min_items``, ``max_items``: the format's loader checks
+    those itself, where it can say more than a count, e.g. a route's stretches)."""
 
-    __slots__ = ("pattern", "min_length", "max_length", "ge", "le", "description", "_re")
+    __slots__ = ("pattern", "min_length", "max_length", "ge", "le", "description",
+                 "min_items", "max_items", "_re")
 
     def __init__(self, *, pattern=None, min_length=None, max_length=None, ge=None, le=None,
-                 description=None):
+                 description=None, min_items=None, max_items=None):
         self.pattern, self.min_length, self.max_length = pattern, min_length, max_length
         self.ge, self.le, self.description = ge, le, description
+        self.min_items, self.max_items = min_items, max_items
         self._re = None
 
     def problem(self, v):

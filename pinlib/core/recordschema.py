@@ -7,7 +7,8 @@ false`` (unknown keys are refused) and its docstring as ``description``.  A fiel
 schema follows its type: text, boolean, integer, number, a date, ``enum``/``const`` for a
 Literal, ``anyOf`` for a union (``null`` for ``| None``: the format modules take it out,
 TOML has no null), ``items`` for an array, ``additionalProperties`` for a table of named
-items; :class:`~pinlib.core.records.Rule` adds its pattern, lengths and bounds and
+items; :class:`~pinlib.core.records.Rule` adds its pattern, lengths, bounds, item counts
+and description, and
 :class:`~pinlib.core.records.WrittenAs` replaces the whole by what a file writes.  A value
 of another class (one a converter makes) has no schema of its own (``{}``): the format's
 module says what a file writes for it.  Keys are sorted, except the properties, which keep
@@ -123,7 +124,8 @@ def _rule(rule: Rule) -> dict:
     out = {}
     for attr, key in (("pattern", "pattern"), ("min_length", "minLength"),
                       ("max_length", "maxLength"), ("ge", "minimum"), ("le", "maximum"),
-                      ("description", "description")):
+                      ("description", "description"), ("min_items", "minItems"),
+                      ("max_items", "maxItems")):
         value = getattr(rule, attr)
         if value is not None:
             out[key] = value

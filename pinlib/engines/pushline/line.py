@@ -233,6 +233,7 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
     pullup = _driver_models(a, res)
     _lumped_note(a, notes)
     _open_stub_note(a, notes)
+    _look_alike_note(a, notes)
     if net is not None and line.extra_capacitance > 0:
         # where on a route it sits is the engine's choice; a star's equal branches tie
         frm = anchor if anchor in net.names else line.route[0][0]
@@ -332,6 +333,35 @@ def _open_stub_note(a: LineAnalysis, notes: list) -> None:
 
 #: Open stubs one note names by their stretch (:func:`_open_stub_note`); the rest counted.
 _STUBS_NAMED = 6
+
+
+def _look_alike_note(a: LineAnalysis, notes: list) -> None:
+    """A note naming the route's junctions named like a device
+    (:func:`pinlib.model.design.route.look_alikes`): a device's reference but for its
+    case, or in the middle of the route in the style of the line's devices while naming
+    none; each is read as a junction, with nothing on it."""
+    alike = getattr(a.line, "look_alikes", ())
+    case = [(p, ref) for p, ref in alike if ref]
+    style = [p for p, ref in alike if not ref]
+    if case:
+        listed = ", ".join(f"{p!r} (like {ref})" for p, ref in case[:_STUBS_NAMED])
+        more = len(case) - _STUBS_NAMED
+        notes.append(
+            f"{'a point' if len(case) == 1 else 'points'} of the route named like a device "
+            f"but for case or spaces: {listed}{f' and {more} more' if more > 0 else ''}; "
+            "a point is a device only by its exact reference designator, so "
+            f"{'it is' if len(case) == 1 else 'each is'} read as a junction with nothing "
+            "on it; if the device sits there, write its reference as the bus lists it")
+    if style:
+        listed = ", ".join(style[:_STUBS_NAMED])
+        more = len(style) - _STUBS_NAMED
+        one = len(style) == 1
+        notes.append(
+            f"{'a junction' if one else 'junctions'} named like a device: {listed}"
+            f"{f' and {more} more' if more > 0 else ''} "
+            f"{'names' if one else 'name'} no device of the design, so nothing loads the "
+            f"line there; if a device sits {'there' if one else 'at one'}, list it on the "
+            f"bus with a pin on {a.signal}")
 
 
 def line_stretches(line: Line) -> list:

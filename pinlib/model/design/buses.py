@@ -10,7 +10,7 @@ from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_of
 from pinlib.model.design.objects import Bus, Device, Line, Segment
 from pinlib.model.design.raw import SIGNAL_FUNCTION, SPI_SIGNALS, RawBus
-from pinlib.model.design.route import route_of
+from pinlib.model.design.route import look_alikes, route_of
 
 #: Older names of the SPI signals still on schematics and in datasheets, and the name a
 #: design gives each (common practice, no source; SDI and SDO are left out: which line
@@ -142,12 +142,15 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
             same = _SPI_OTHER_NAMES.get(sig.lower())
             raise err(M.UNKNOWN_SPI_SIGNAL, loc, value=sig, expected=", ".join(SPI_SIGNALS),
                       hint=f"{sig} is named {same} here" if same else None)
+        alike: tuple = ()
         if rt.route:
             secs, points = route_of(rt, loc, devices, rb.protocol, sig, len(rb.lines),
                                     sections, err, homes)
+            alike = look_alikes(points, devices, rb.protocol, sig, len(rb.lines), homes)
         else:
             secs, points = sections(rt, loc), ()
-        lines[sig] = Line(sig, secs, rt.series_resistor, rt.extra_capacitance, loc, points)
+        lines[sig] = Line(sig, secs, rt.series_resistor, rt.extra_capacitance, loc, points,
+                          alike)
     if rb.protocol == "spi":
         if rb.clock is None:
             raise err(M.SPI_NEEDS_CLOCK, bloc + ("clock",),

@@ -110,6 +110,11 @@ class Line:
     # points form a tree, each device on the line at the point named by its reference
     # designator.  Empty: the simple form, every pin at the far end of ``sections``.
     route: tuple[tuple[str, str], ...] = ()
+    # Junctions of the route named like a device (:func:`pinlib.model.design.route.
+    # look_alikes`): (junction, the device's reference) for a name that is a device's of
+    # the design but for its case; (junction, "") for a mid-route junction named in the
+    # style of the line's devices (their letters, then digits) that names no device.
+    look_alikes: tuple[tuple[str, str], ...] = ()
 
     @property
     def length(self) -> float:

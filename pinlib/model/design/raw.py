@@ -10,6 +10,7 @@ from pinlib.core import protocols
 from pinlib.core.errors import DesignError
 from pinlib.core.quantity import parse, range_text
 from pinlib.core.records import Convert, Record, Rule, WrittenAs, field
+from pinlib.core.worklimits import MAX_ROUTE_STRETCHES
 
 FORMAT = "pinlib.design/1"
 PROTOCOLS = protocols.NAMES
@@ -131,15 +132,20 @@ def _one_line(raw, name=None):
     return raw
 
 
+_POINT = ("the reference designator of a device on the line (\"U2\"), or any other name "
+          "for a junction (\"T1\", \"S\"); 1 to 40 characters")
 PointName = Annotated[str, Convert(_one_line), Rule(min_length=1, max_length=40)]
 
 
 class RawRouteStretch(RawSection):
     """One stretch of a routed line between two points: a device's reference designator on
-    the line, or a junction named freely (``"T1"``)."""
+    the line, or a junction named freely (``"T1"``).  Written like any stretch (``length``
+    with ``geometry``, ``capacitance``/``delay``, or a cable ``part``) plus its two
+    points."""
 
-    from_: PointName = field(alias="from")
-    to: PointName
+    from_: Annotated[PointName, Rule(description="one end of the stretch: " + _POINT)] = (
+        field(alias="from"))
+    to: Annotated[PointName, Rule(description="the other end of the stretch: " + _POINT)]
 
 
 def _a_route(raw, name=None):
@@ -155,7 +161,12 @@ def _a_route(raw, name=None):
 class RawTrace(RawSection):
     sections: tuple[RawSection, ...] = ()
     # push-pull lines only
-    route: Annotated[tuple[RawRouteStretch, ...], Convert(_a_route)] = ()
+    route: Annotated[tuple[RawRouteStretch, ...], Convert(_a_route), Rule(
+        min_items=1, max_items=MAX_ROUTE_STRETCHES,
+        description=f"push-pull lines: the line as stretches between named points, each "
+                    f"device on it at the point named by its reference designator, instead "
+                    f"of length/sections; the points form one tree holding every device "
+                    f"with a pin on the line; 1 to {MAX_ROUTE_STRETCHES} stretches")] = ()
     length: Length | None = None  # type: ignore[assignment]
     series_resistor: SeriesSetting = "none"  # push-pull lines only
     extra_capacitance: Capacitance = 0.0

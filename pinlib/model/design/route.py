@@ -3,6 +3,7 @@ junctions) that must form one tree holding every device on the line exactly once
 
 from __future__ import annotations
 
+import re
 from collections.abc import Callable, Sequence
 
 from pinlib.core import messages as M
@@ -174,3 +175,65 @@ def route_of(rt: RawTrace, loc, devices: Sequence[Device], protocol: str, signal
                       hint=(f"the route's point {shown} names no device of the bus "
                             f"(a junction): {d.ref} misspelt?") if near else None)
     return tuple(out), points
+
+
+#: A reference designator's form: letters, then digits ("U7", "J12").
+_REF_FORM = re.compile(r"([A-Za-z]+)([0-9]+)")
+
+
+def look_alikes(points: Sequence[tuple[str, str]], devices: Sequence[Device], protocol: str,
+                signal: str, n_lines: int, homes: dict | None = None
+                ) -> tuple[tuple[str, str], ...]:
+    """The junctions of a route whose names look like a device slipped out of place, for
+    the line's notes (a point is a device by its exact reference designator alone, and a
+    junction may be named anything, so neither is refused).
+
+    Two kinds, chosen to stay quiet on junctions named as junctions (``"T1"``, ``"S"``,
+    ``"TP3"`` beside devices ``U1``...):
+
+    * a name that is a device's of the design but for its case (``"u5"`` for ``U5``),
+      wherever it stands: no junction is meant to be named so; ``(name, "U5")``;
+    * a junction in the middle of the route (joined by two stretches or more: an end is
+      named by the open-stub note) named with the letters of a device on the line, then
+      digits (``"U7"`` beside ``U1``...``U4``), that names no device of the design:
+      most likely a device missing from the bus's list; ``(name, "")``.
+
+    Parameters
+    ----------
+    points : sequence of (str, str)
+        The route's (from, to) points. [1]
+    devices : sequence of Device
+        Every device of the bus. [1]
+    protocol, signal : str
+        The bus's protocol and the line's signal. [1]
+    n_lines : int
+        How many lines the bus routes (the GPIO pin rule). [1]
+    homes : dict, optional
+        The bus of every reference designator of the design. [1]
+
+    Returns
+    -------
+    tuple of (str, str)
+        Each such junction once, in the route's order, with the device it is like. [1]
+    """
+    of_bus = {d.ref for d in devices}
+    refs = of_bus | set(homes or {})
+    by_case = {r.casefold(): r for r in sorted(refs)}
+    on = [d.ref for d in devices if on_line(d, protocol, signal, n_lines)]
+    letters = {m.group(1).casefold() for m in map(_REF_FORM.fullmatch, on) if m}
+    count: dict[str, int] = {}
+    for pair in points:
+        for p in pair:
+            count[p] = count.get(p, 0) + 1
+    out: dict[str, str] = {}
+    for p in count:
+        if p in refs:
+            continue  # a device (the loader has refused one not on this line)
+        like = by_case.get(p.strip().casefold())
+        if like is not None:
+            out[p] = like
+            continue
+        m = _REF_FORM.fullmatch(p)
+        if count[p] >= 2 and m and m.group(1).casefold() in letters:
+            out[p] = ""
+    return tuple(out.items())

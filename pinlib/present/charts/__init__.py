@@ -47,6 +47,7 @@ from pinlib.present.charts.style import (  # noqa: F401
     BOUND_HIGH,
     BOUND_LOW,
     DARK_OLIVE,
+    DASHES,
     FAIL,
     FONT,
     INDIGO,
@@ -69,8 +70,10 @@ from pinlib.present.charts.style import (  # noqa: F401
     WARN,
     WINE,
     YELLOW,
+    dash_pattern,
     series_colours,
     series_key,
+    series_styles,
     text_width,
 )
 from pinlib.present.charts.waves import (  # noqa: F401

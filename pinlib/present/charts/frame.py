@@ -115,14 +115,23 @@ def _scale_pair(domain: list[str], colours: list[str]):
     return alt.Scale(domain=list(domain), range=list(colours))
 
 
-def _columns(labels: Sequence[str], room: float) -> int:
-    """How many legend columns fit ``labels`` into ``room`` px, entries in rows."""
-    widths = [_LEGEND_SYMBOL + text_width(s, _LEGEND_SIZE) for s in labels]
+def _columns(labels: Sequence[str], room: float, symbol: float = _LEGEND_SYMBOL) -> int:
+    """How many legend columns fit ``labels`` into ``room`` px, entries in rows, each
+    after a symbol and its gap ``symbol`` px wide."""
+    widths = [symbol + text_width(s, _LEGEND_SIZE) for s in labels]
     for k in range(max(len(widths), 1), 1, -1):
         cols = [max(widths[j::k]) for j in range(k)]
         if sum(cols) + _LEGEND_GAP * (k - 1) <= room:
             return k
     return 1
+
+
+#: The entries Vega lists in a legend unless told more (its default ``symbolLimit``); the
+#: rest it counts ("...38 entries"), which names none of them.
+_VEGA_SYMBOL_LIMIT = 30
+
+#: The side of a legend's square symbol: Vega's default size, 100 px². [px]
+_LEGEND_SQUARE = 10.0
 
 
 def _plot_room(width: int, left: float = _AXIS_ROOM, right: float = 12.0) -> float:
@@ -131,17 +140,29 @@ def _plot_room(width: int, left: float = _AXIS_ROOM, right: float = 12.0) -> flo
     return max(float(width) - left - right, 60.0)
 
 
-def _legend(title: str | None, labels: Sequence[str] = (), room: float = _WIDTH, **extra):
+def _legend(title: str | None, labels: Sequence[str] = (), room: float = _WIDTH, *,
+            line: float | None = None, **extra):
     """A legend below the plot, starting at its left edge, its entries in as many
-    columns as fit ``room`` px (the plot's width, :func:`_plot_room`); no label is cut."""
+    columns as fit ``room`` px (the plot's width, :func:`_plot_room`); no label is cut.
+    ``line``: each entry's symbol a line that long instead of a square (its dash shown),
+    without fill. [px]"""
     alt = _alt()
     head = _wrap(title, _LEGEND_SIZE, room - 4, bold=True) if title else None
+    symbol = _LEGEND_SYMBOL
+    if line is not None:
+        # Vega draws a "stroke" symbol as long as the square root of its size
+        symbol += line - _LEGEND_SQUARE
+        extra = dict(symbolType="stroke", symbolSize=line * line, symbolStrokeWidth=2,
+                     symbolFillColor="transparent",
+                     **extra)
     props = dict(title=head[0] if head and len(head) == 1 else head, orient="bottom",
                  direction="horizontal", titleLimit=int(room), titleOrient="top",
-                 columns=_columns(list(labels), room), labelLimit=int(room),
+                 columns=_columns(list(labels), room, symbol), labelLimit=int(room),
                  labelFontSize=_LEGEND_SIZE, titleFontSize=_LEGEND_SIZE,
                  columnPadding=_LEGEND_GAP, rowPadding=4, symbolOpacity=0.9,
                  offset=_LEGEND_OFFSET)
+    if len(labels) > _VEGA_SYMBOL_LIMIT:  # Vega lists 30 and counts the rest
+        props["symbolLimit"] = len(labels)
     props.update(extra)
     return alt.Legend(**props)
 

@@ -208,6 +208,51 @@ def series_colours(names: Sequence[str], taken: Sequence[str] = ()) -> list[str]
     return [str(c) for c in out]
 
 
+#: The dash patterns a chart's series cycle through once :data:`SERIES` is used up (a
+#: route's waveforms at every receiver: up to 64 receivers, two corners each): the
+#: first cycle solid, each later one its own pattern, so that every series of a chart has
+#: a (colour, dash) pair of its own.  [on, off...] in px; ``(1, 0)`` is solid.  The
+#: first few are the most readable (long dashes, then dots, then dash-dot); past the
+#: table (56 series on 7 colours) each cycle lengthens the dash of a dash-dot by 2 px.
+DASHES = ((1, 0), (7, 3), (2, 2), (9, 3, 2, 3), (4, 4), (12, 4), (1, 3), (9, 3, 2, 3, 2, 3))
+
+
+def dash_pattern(cycle: int) -> tuple[int, ...]:
+    """The dash pattern of the ``cycle``-th pass through the series colours (0: solid),
+    each cycle's its own. [px]"""
+    if cycle < len(DASHES):
+        return DASHES[cycle]
+    k = cycle - len(DASHES)
+    return (14 + 2 * k, 3, 3, 3) if k % 2 == 0 else (14 + 2 * k, 3, 1, 3, 1, 3)
+
+
+def series_styles(names: Sequence[str], taken: Sequence[str] = ()
+                  ) -> list[tuple[str, tuple[int, ...]]]:
+    """A (colour, dash pattern) for each series name, every pair distinct.
+
+    Parameters
+    ----------
+    names : sequence of str
+        The series of one chart, each once. [1]
+    taken : sequence of str, optional
+        Colours the chart already gives to fixed roles. [1]
+
+    Returns
+    -------
+    list of (str, tuple of int)
+        While :func:`series_colours` gives every name a colour of its own, those, solid.
+        Past that (more series than :data:`SERIES` has colours free) the names take the
+        free colours in turn, in their order, solid on the first pass and with the
+        pass's :func:`dash_pattern` on each later one: a chart of 8 receivers draws
+        the eighth as the first, dashed.
+    """
+    colours = series_colours(names, taken)
+    if len(set(colours)) == len(names):
+        return [(c, DASHES[0]) for c in colours]
+    free = [c for c in SERIES if c not in set(taken)] or list(SERIES)
+    return [(free[i % len(free)], dash_pattern(i // len(free))) for i in range(len(names))]
+
+
 _LEGEND_SIZE = 11  # legend label font size [px]
 _LEGEND_SYMBOL = 20  # a legend entry's symbol and the gap after it [px]
 _LEGEND_GAP = 14  # between two legend columns [px]

@@ -32,8 +32,12 @@ from pinlib.present.charts.style import (
     INK,
     LIMIT,
     UNDEFINED,
-    series_colours,
+    series_styles,
 )
+
+#: The length of a legend's line symbol where the entries differ in dash: one whole
+#: period of the longest of the first patterns (:data:`DASHES`). [px]
+_DASH_SYMBOL = 28.0
 
 if TYPE_CHECKING:  # pragma: no cover - typing only
     import altair as alt
@@ -42,7 +46,8 @@ if TYPE_CHECKING:  # pragma: no cover - typing only
 def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
               title: str | None = "Receiver waveforms", subtitle: str | None = None,
               band_label: str = "between VIL and VIH", threshold_label: str = "VIL / VIH",
-              width: int = _WIDTH, height: int = _HEIGHT) -> alt.LayerChart:
+              width: int = _WIDTH, height: int = _HEIGHT,
+              groups: Mapping[str, str] | None = None) -> alt.LayerChart:
     """Receiver voltage against time, with the band between VIL and VIH shaded.
 
     Parameters
@@ -66,12 +71,18 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
         Width of the whole chart, axes and legend included. [px]
     height : int, optional
         Height of the plot. [px]
+    groups : dict of str to str, optional
+        The legend entry of each trace named in it (``{"rise at U2": "at U2", "fall at
+        U2": "at U2"}``): the traces of one entry share its colour and dash, each still
+        its own line.  A trace not named is an entry of its own.
 
     Returns
     -------
     altair.LayerChart
         Band (rect between VIL and VIH), threshold lines with their values written
-        beside them, the optional VDD line, then one line per trace.
+        beside them, the optional VDD line, then one line per trace.  Every legend entry
+        has a (colour, dash) pair of its own (:func:`pinlib.present.charts.style.
+        series_styles`), however many there are: solid while the series colours last.
     """
     alt = _alt()
     tt = _array(t, "t")
@@ -100,10 +111,12 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
     x_title = _title("Time", ux)
     y_title = _title("Voltage at the receiver", uy)
 
-    names = list(vs)
+    entry = {name: str((groups or {}).get(name, name)) for name in vs}
+    names = list(dict.fromkeys(entry.values()))  # the legend's entries, in trace order
     vdd_label = None if top is None else f"VDD {format_si(top, 'V')}"
     fixed = [band_label, threshold_label] + ([vdd_label] if vdd_label else [])
     fixed_colours = [UNDEFINED, LIMIT] + ([INK] if vdd_label else [])
+    fixed_dashes = [[1, 0], [6, 3]] + ([[2, 3]] if vdd_label else [])
     if set(names) & set(fixed):
         raise InputError(M.LABEL_IN_LEGEND.format(what="trace label"), field="traces",
                          value=sorted(set(names) & set(fixed)), expected="other labels")
@@ -114,27 +127,41 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
                "text": f"VIH {hi * fy:.3g} {uy}"}]
     vdd_rows = [{"v": _num(top * fy), "series": vdd_label}] if vdd_label else None
     rows = []
-    for name in names:
-        a = vs[name]
+    for name, a in vs.items():
         ok = _keep(tt, a, positive=(False, False))
-        rows += [{"t": _num(p * fx), "v": _num(q * fy), "series": name}
+        rows += [{"t": _num(p * fx), "v": _num(q * fy), "series": entry[name], "trace": name}
                  for p, q in zip(tt[ok], a[ok], strict=True)]
-    known = _reuse(("waveforms", x_title, y_title, tuple(names), band_label,
+    known = _reuse(("waveforms", x_title, y_title, tuple(entry.items()), band_label,
                     threshold_label, vdd_label, title, subtitle, width, height),
                    [band_rows, levels, levels] + ([vdd_rows] if vdd_label else []) + [rows])
     if known is not None:
         return known
 
-    colour = alt.Color("series:N",
-                       scale=_scale_pair(fixed + names,
-                                         fixed_colours + series_colours(names, fixed_colours)),
-                       legend=_legend(None, fixed + names, _plot_room(width)))
+    styles = series_styles(names, fixed_colours)
+    domain = fixed + names
+    colours = _scale_pair(domain, fixed_colours + [c for c, _ in styles])
+    dashed = any(d != styles[0][1] for _, d in styles)
+    if dashed:
+        # More entries than series colours: each later pass through them dashed.  The
+        # lines then draw their colour as a stroke and the band its fill as a fixed value
+        # (its entry kept by the scale's domain), so that the legend draws each entry as
+        # a line with its dash and no fill (the threshold and VDD entries with their
+        # rules' dashes).
+        legend = _legend(None, domain, _plot_room(width), line=_DASH_SYMBOL)
+        colour = alt.Stroke("series:N", scale=colours, legend=legend)
+        dash = {"strokeDash": alt.StrokeDash("series:N", legend=legend, scale=alt.Scale(
+            domain=domain, range=fixed_dashes + [list(d) for _, d in styles]))}
+    else:
+        colour = alt.Color("series:N", scale=colours,
+                           legend=_legend(None, domain, _plot_room(width)))
+        dash = {}
     # the voltage axis padded: VDD or a threshold is never drawn on the frame
     band = alt.Chart(_data(band_rows)).mark_rect(
-        opacity=_BAND_OPACITY).encode(y=_q("lo", y_title, channel="y", pad=True), y2=alt.Y2("hi:Q"),
-                                      color=colour)
+        opacity=_BAND_OPACITY, **({"strokeWidth": 0, "fill": UNDEFINED} if dashed else {})).encode(
+        y=_q("lo", y_title, channel="y", pad=True), y2=alt.Y2("hi:Q"),
+        **({} if dashed else {"color": colour}))
     rules = alt.Chart(_data(levels)).mark_rule(strokeDash=[6, 3]).encode(
-        y=_q("v", y_title, channel="y", pad=True), color=colour)
+        y=_q("v", y_title, channel="y", pad=True), **_paint(colour, dashed))
     words = alt.Chart(_data(levels)).mark_text(
         align="right", baseline="bottom", dx=-4, dy=-2, fontSize=10, fontWeight="bold",
         color=LIMIT).encode(x=alt.value("width"), y=_q("v", y_title, channel="y", pad=True),
@@ -143,10 +170,16 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
     if vdd_label:
         layers.append(alt.Chart(_data(vdd_rows))
                       .mark_rule(strokeDash=[2, 3]).encode(
-                          y=_q("v", y_title, channel="y", pad=True), color=colour))
+                          y=_q("v", y_title, channel="y", pad=True), **_paint(colour, dashed)))
     # the time axis ends where the record does (a "nice" end past it drew a blank band
     # that read as missing data)
     layers.append(alt.Chart(_data(rows)).mark_line(strokeWidth=1.8).encode(
-        x=_q("t", x_title, nice=False), y=_q("v", y_title, channel="y", pad=True), color=colour,
-        detail=alt.Detail("series:N")))
+        x=_q("t", x_title, nice=False), y=_q("v", y_title, channel="y", pad=True),
+        **_paint(colour, dashed), **dash, detail=alt.Detail("trace:N")))
     return _titled(alt.layer(*layers), title, subtitle, width, height)
+
+
+def _paint(colour, dashed: bool) -> dict:
+    """A line's colour encoding: as its stroke where the legend draws lines, else as
+    its colour."""
+    return {"stroke": colour} if dashed else {"color": colour}

@@ -16,6 +16,13 @@ _LOAD_POINTS = 61
 _WAVE_POINTS = 700
 _SETTLE_BAND = 0.02     # a trace has settled once it stays within 2 % of its swing
 _WINDOW_PAD = 1.3       # the waveform window runs 30 % past the last trace's settling
+# Ringing that outlasts the solver's record (a route's branches ringing against each other
+# in the lossless model, a few % of the swing to the end): a trace counts as settled once
+# it stays within _RING_MARGIN times the largest excursion of the record's last half
+# (_RING_TAIL; half, not less: unequal branches beat, and a shorter tail could fall in a
+# lull of the beat and set the band below the ringing that comes back after it).
+_RING_TAIL = 0.5
+_RING_MARGIN = 1.5
 
 
 # =========================================================================== helpers

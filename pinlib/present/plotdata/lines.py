@@ -14,6 +14,8 @@ from pinlib.model.design import Bus, Design
 from pinlib.physics import driver as drv
 from pinlib.present.plotdata.common import (
     _LOAD_POINTS,
+    _RING_MARGIN,
+    _RING_TAIL,
     _SETTLE_BAND,
     _WAVE_POINTS,
     _WINDOW_PAD,
@@ -110,6 +112,12 @@ class WaveformData:
         The bus's checks are at the worst corner of its tolerances (supply, lengths,
         capacitances: :func:`pinlib.engines.pushpull.evaluate_bus`) while the traces
         are the nominal board; a note says so. [1]
+    groups : dict of str to str
+        On a route's chart of every receiver, the legend entry of each trace: its
+        receiver (and corner), ``"at U2"`` for ``"rise at U2"`` and ``"fall at U2"``,
+        so that the two edges at one receiver share its colour and dash and the legend
+        names each receiver once (:func:`pinlib.present.charts.waveforms`); empty
+        otherwise (each trace its own entry). [1]
     """
 
     bus: str
@@ -126,6 +134,7 @@ class WaveformData:
     notes: list = field(default_factory=list)
     si_corner: str = "slow"
     checks_at_worst: bool = False
+    groups: dict = field(default_factory=dict)
 
 
 # =========================================================================== push-pull
@@ -231,16 +240,32 @@ def _receiver_levels(la, ref: str, only: str | None = None) -> tuple[float, floa
     return (min(lows) if lows else math.nan), (max(highs) if highs else math.nan), names
 
 
-def _window_end(waves) -> float:
-    """Where the chart's time axis ends: past the moment the slowest trace settles."""
-    end = 0.0
+def _window_end(waves) -> tuple[float, float]:
+    """Where the chart's time axis ends, and the ringing that outlasts the records.
+
+    The axis ends :data:`_WINDOW_PAD` past the moment the slowest trace stays within
+    :data:`_SETTLE_BAND` of its swing of its final level; or, for a trace that still
+    rings at the end of its record (a star's branches ringing against each other in the
+    lossless model keep a few % of the swing to the end), within :data:`_RING_MARGIN`
+    times the largest excursion over the last part of its record (:data:`_RING_TAIL`, the
+    second half): it has settled into the ringing it keeps, and the axis shows the edges
+    rather than the solver's whole record.  Returns the end [s] and the largest such excursion as a fraction of
+    the swing (0 when every trace settles within the band in its record) [1].
+    """
+    end, ringing = 0.0, 0.0
     record = max(float(w.t[-1]) for w in waves)
     for w in waves:
         swing = abs(w.v_to - w.v_from)
-        outside = np.flatnonzero(np.abs(w.v - w.v_to) > _SETTLE_BAND * swing)
+        off = np.abs(w.v - w.v_to)
+        tail = off[w.t >= (1.0 - _RING_TAIL) * float(w.t[-1])]
+        kept = float(tail.max()) if tail.size and swing > 0 else 0.0
+        band = max(_SETTLE_BAND * swing, _RING_MARGIN * kept)
+        if band > _SETTLE_BAND * swing:
+            ringing = max(ringing, kept / swing)
+        outside = np.flatnonzero(off > band)
         if outside.size:
             end = max(end, float(w.t[min(int(outside[-1]) + 1, w.t.size - 1)]))
-    return min(_WINDOW_PAD * end, record) if end > 0 else record
+    return (min(_WINDOW_PAD * end, record) if end > 0 else record), ringing
 
 
 def _route_waves(la, ref: str, case, receiver: str | None, cases: dict) -> dict:
@@ -327,7 +352,8 @@ def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None =
     trace's own peak and dip sample so that the drawn overshoot is the measured one) by
     linear interpolation, holding a record's last (settled, within 1 %) value past its
     end. The window ends 30 % past the moment the slowest trace stays within 2 % of its
-    final level.
+    final level, or, where ringing outlasts the record, within 1.5 times the ringing it
+    keeps to the end (:func:`_window_end`; a note then gives the ringing's size).
     """
     la = _line(bus, design, signal, analysis)
     ref, case = _case(la, driver)
@@ -361,7 +387,12 @@ def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None =
     board = _board_note(bus)
     if board is not None:
         notes.append(board)
-    end = _window_end(list(waves.values()))
+    end, ringing = _window_end(list(waves.values()))
+    if ringing > 0:
+        notes.append(f"ringing of up to {ringing * 100:.1f} % of the swing remains through "
+                     "the second half of the solved record (the line is solved lossless; "
+                     "loss on a real board damps it): the time axis ends once the edges "
+                     "have settled into it")
     grid = [np.linspace(0.0, end, max(int(points), 2))]
     for w in waves.values():
         for k in (int(np.argmax(w.v)), int(np.argmin(w.v))):
@@ -375,5 +406,9 @@ def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None =
     vdd = float(case.v_high)
     over = {n: float(w.overshoot) for n, w in waves.items() if w.edge == "rise"}
     under = {n: float(w.undershoot) for n, w in waves.items() if w.edge == "fall"}
+    # every receiver of a route: one legend entry per receiver (and corner), its rise and
+    # fall in one colour and dash (a route holds up to 64 receivers)
+    groups = ({n: n.split(" ", 1)[1] for n in traces}
+              if la.net is not None and receiver is None else {})
     return WaveformData(bus.id, signal, ref, t, traces, v_il, v_ih, vdd, rx, over, under,
-                        notes, "fast" if fast else "slow", board is not None)
+                        notes, "fast" if fast else "slow", board is not None, groups)

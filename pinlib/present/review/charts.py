@@ -101,7 +101,7 @@ def _push_pull_charts(bus, design, result: BusResult, keys, charts):
                 keys(bus.id, sig, ref, "waveforms"), "waveforms", title, caption,
                 lambda w=w, title=title, rx=rx: ch.waveforms(
                     w.t, w.traces, v_il=w.v_il, v_ih=w.v_ih, vdd=w.vdd, title=title,
-                    subtitle=f"at {rx}")))
+                    subtitle=f"at {rx}", groups=w.groups)))
     sa = plotdata.workings(bus, design, result) if bus.protocol == "spi" else None
     if sa is not None and sa.terms:
         _budget_chart(bus, design, result, keys, charts)

@@ -388,7 +388,7 @@ class LineExplorer(_Panel):
             charts.waveforms, w.t, w.traces, v_il=w.v_il, v_ih=w.v_ih, vdd=w.vdd,
             title=("Receiver waveforms" if self.placement.value == "daisy chain"
                    else "Far-end waveforms"),
-            subtitle="at " + ", ".join(w.receivers)))
+            subtitle="at " + ", ".join(w.receivers), groups=w.groups))
 
     def static_view(self) -> StaticView:
         """The charts and tables as plain HTML, for exported pages."""
