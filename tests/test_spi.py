@@ -522,3 +522,29 @@ def test_negative_slack_fails_a_recorded_zero_and_warns_an_unrecorded_one(tmp_pa
     assert got["t-ctrl-untimed"].status == "warn"
     assert "not a failure" in got["t-ctrl-untimed"].message
     assert "t_setup" in got["t-ctrl-untimed"].advice
+
+
+def test_a_cs_line_shared_by_several_peripherals_says_what_it_stands_for(tmp_path):
+    # one CS description for two peripherals is solved as one net loading both CS pins;
+    # on most boards each has its own chip select, so the note says the lines are lighter
+    d, bus = write_design(tmp_path, peripherals=("pp-periph", "pp-periph"))
+    notes = [n for n in evaluate_bus(bus, d).notes if n.startswith("cs: solved as one net")]
+    assert len(notes) == 1 and "CS pins of U2 and U3 together" in notes[0]
+    assert "faster" in notes[0]
+    d1, bus1 = write_design(tmp_path, name="one.toml")
+    assert not any(n.startswith("cs: solved") for n in evaluate_bus(bus1, d1).notes)
+    # a route drawn for cs is the one net the user drew: no note
+    route = (Path(__file__).parent / "data" / "spi-route.toml").read_text(encoding="utf-8")
+    drawn = route.replace(
+        'lines.cs = { length = "5 cm", capacitance = "1 pF/cm", delay = "60 ps/cm" }',
+        'lines.cs = { route = [\n'
+        '  { from = "U1", to = "U2", length = "2 cm", geometry = "outer-0p2" },\n'
+        '  { from = "U2", to = "U3", length = "3 cm", geometry = "outer-0p2" },\n'
+        '  { from = "U3", to = "U4", length = "3 cm", geometry = "outer-0p2" },\n] }')
+    assert drawn != route
+    (tmp_path / "route.toml").write_text(drawn, encoding="utf-8")
+    dr = load_design(tmp_path / "route.toml")
+    res = evaluate_bus(dr.buses[0], dr)
+    assert not any(n.startswith("cs: solved") for n in res.notes)
+    plain = load_design(Path(__file__).parent / "data" / "spi-route.toml")
+    assert any("U2, U3 and U4 together" in n for n in evaluate_bus(plain.buses[0], plain).notes)

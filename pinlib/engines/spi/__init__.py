@@ -66,7 +66,8 @@ lower ``max_clock``.
 
 Limits: a signal the design does not route is not connected (no CIPO route: no read
 budget); the design gives one CS route per bus, so every peripheral's CS pin loads it
-(separate chip selects would each carry one); CS is taken as active low; the
+(separate chip selects would each carry one; the bus's notes say so where a plain CS
+line serves several peripherals); CS is taken as active low; the
 controller's own ``t_valid``, ``t_setup`` and ``t_hold`` are taken as 0 when its class
 does not record them (a note says so).  A check against a requirement of 0 has the
 slack in seconds as its margin (``Term.check_margin``); against a 0 taken for a

@@ -244,6 +244,8 @@ def line_setup(bus: Bus, design: Design,
             others = [e for e in (endpoint(p, fn, bus) for p in peripherals + bridges) if e]
             loads = [d] + others
             receivers = [e for e in others if e.pin.drive == "input"]
+            if sig == "cs" and not line.route and len(others) > 1:
+                notes.append(_shared_cs_note(controller, others))
         else:
             drivers = [e for e in (endpoint(p, fn, bus) for p in peripherals)
                        if e is not None and e.pin.drive == "push-pull"]
@@ -258,6 +260,19 @@ def line_setup(bus: Bus, design: Design,
                               clock=bus.clock, clock_line=(sig == "sclk"), warn_margin=warn,
                               bus_id=bus.id)
     return out, controller, peripherals, bridges, notes
+
+
+def _shared_cs_note(controller: Device, pins: list) -> str:
+    """What the one CS line of a bus with several peripherals stands for: the design
+    gives one CS description, and pinlib solves it as one net loading every peripheral's
+    CS pin; a board with a chip select per peripheral has lighter lines."""
+    refs = [p.ref for p in pins]
+    named = ", ".join(refs[:-1]) + f" and {refs[-1]}"
+    return (f"cs: solved as one net from {controller.ref} to the CS pins of {named} "
+            "together; where each peripheral has a chip select of its own (the usual "
+            "board), each of those lines carries one pin, so its edges are faster and "
+            "may overshoot and ring more than shown (a route drawn for cs is taken as "
+            "the one net it draws)")
 
 
 def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
