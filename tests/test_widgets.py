@@ -1096,3 +1096,21 @@ def test_line_explorer_charts_end_at_the_record_and_keep_the_note_off_the_curves
         room, text = _note_clearance(le.edges.spec)
         # common practice, no source: 3 px between text and a line reads as apart
         assert room >= 3.0, (length, text, room)
+
+
+def test_bus_builder_supply_filter_takes_the_rail_over_its_tolerance(library):
+    # mcu-3v3's class states 3.0–3.6 V (invented built-in class); a 3.3 V rail at ±5 %
+    # (3.135–3.465 V) stays inside it, at ±10 % (2.97–3.63 V) it does not, and the
+    # engine's supply-range check takes the rail at its tolerance (derived: 3.3·0.9, 3.3·1.1)
+    b = BusBuilder(library, peripherals=())
+    b.set(function="any", supply=3.3, supply_tolerance=0.05, fits_supply=True)
+    assert "(does not fit)" not in dict((v, k) for k, v in b.controller.options)["mcu-3v3"]
+    b.set(supply_tolerance=0.10)
+    assert "(does not fit)" in dict((v, k) for k, v in b.controller.options)["mcu-3v3"]
+    assert "does not hold the 3.3 V rail at ±10 % (2.97 V–3.63 V)" in b.controller_note.value
+    assert any(c.id == "supply-range" and c.status == "fail"
+               for _, _, c in b.bus_result.all_checks())
+    # fpga-io-3v3 states 3.135–3.465 V: exactly the 3.3 V rail at ±5 %, the ends at the
+    # part's limits, where the check passes at a margin of 0
+    b.set(supply_tolerance=0.05)
+    assert "(does not fit)" not in dict((v, k) for k, v in b.controller.options)["fpga-io-3v3"]

@@ -186,7 +186,8 @@ class BusBuilder(_Panel):
                                       placeholder="3.3 V"),
                         lambda _f: self._filters_changed())
         self.supply_tolerance = q(QuantityField("supply_tolerance", "Supply ±", "%", 0.05,
-                                                lo=0.0, hi=0.2, placeholder="5 %"))
+                                                lo=0.0, hi=0.2, placeholder="5 %"),
+                                  lambda _f: self._filters_changed())
 
     def _part_controls(self) -> None:
         """The parts: filters, the controller, the peripherals placed."""
@@ -295,10 +296,19 @@ class BusBuilder(_Panel):
         if category and self.category.value != "any" and part.category != self.category.value:
             why.append(f"its category is {part.category}, not {self.category.value}")
         if self.fits_supply.value and part.supply is not None:
+            # the rail over its tolerance, by the engine's supply-range rule (an end
+            # within rounding of the part's limit is at it)
+            from pinlib.engines.opendrain.rules import supply_margin
+
             lo, hi = float(part.supply.min.at()), float(part.supply.max.at())
-            if not lo <= self.supply.value <= hi:
+            v, tol = self.supply.value, self.supply_tolerance.value
+            if float(supply_margin(v * (1.0 - tol), v * (1.0 + tol), lo, hi)[0]) < 0:
+                rail = f"the {format_si(v, 'V')} rail"
+                if tol > 0:
+                    rail += (f" at ±{tol * 100:g} % ({format_si(v * (1.0 - tol), 'V')}–"
+                             f"{format_si(v * (1.0 + tol), 'V')})")
                 why.append(f"its supply range {format_si(lo, 'V')}–{format_si(hi, 'V')} "
-                           f"does not hold the {format_si(self.supply.value, 'V')} rail")
+                           f"does not hold {rail}")
         if self.function.value != "any" and self.function.value not in part.functions():
             why.append(f"it offers no {self.function.value} pin")
         return "; ".join(why)
