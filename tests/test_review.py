@@ -1223,3 +1223,24 @@ def test_markdown_parts_tables_cite_each_source_once_by_number(built, demo):
     notes = [ln for ln in part.splitlines() if not ln.startswith(("|", "#"))]
     assert max(len(ln) for ln in notes) <= 80
     assert max(len(ln) for ln in rows) < 120
+
+
+def test_a_warning_slack_in_seconds_is_among_the_histograms_drawn():
+    # the histograms follow the text's rows: fewest passing, most boards that warn, then
+    # the lowest margin; a slack in seconds sorts after every fraction by margin alone,
+    # so one that warns on every board fell behind a dozen passing fractions (invented)
+    import numpy as np
+
+    from pinlib.studies.whatif.mcresult import McCheck, McResult
+    from pinlib.studies.whatif.yields import Yield
+
+    def mc(i, margins, warns=0, unit=None):
+        return McCheck(f"b c{i}", "b", "b", None, f"c{i}", "", "", "pass", 0.5,
+                       Yield(4, 4, (0.5, 1.0)), margins=np.asarray(margins, dtype=float),
+                       warns=warns, fails=0, margin_unit=unit)
+
+    rows = [mc(i, [0.2 + i / 100, 0.3, 0.4, 0.5]) for i in range(review.MC_CHARTS)]
+    rows.append(mc(99, [-2e-9, -1e-9, -1.5e-9, -1e-9], warns=4, unit="s"))
+    run = McResult("d", 4, 1, "uniform", [], rows, {}, None, np.zeros((4, 0)))
+    charts, _ = review._mc_charts(run, review._Keys())
+    assert len(charts) == review.MC_CHARTS and "C99" in charts[0].title

@@ -57,6 +57,7 @@ def _mc_rows(mc) -> list[dict]:
                 "count": f"{passes.passes}/{passes.n}",
                 "varies": bool(_get(entry, "varies", True)),
                 "failures": passes.passes < passes.n, "lowest": lowest,
+                "warns": _get(entry, "warns", 0) or 0,
                 "sensitivity": list(_get(entry, "sensitivity", []) or [])[:3],
                 "sensitivity_text": entry.sensitivity_text()
                 if hasattr(entry, "sensitivity_text") else None,
@@ -98,9 +99,9 @@ def _mc_charts(mc, keys) -> tuple[list, list]:
     rows = _mc_rows(mc)
     shown = [r for r in rows if r["varies"] or r["failures"]]
 
-    def order(r):
+    def order(r):  # as the text's rows: fewest passing, most warning, lowest margin
         frac = r["fraction"] if r["fraction"] is not None else 1.0
-        return (frac, *margin_order(r["lowest"], r.get("margin_unit")))
+        return (frac, -r.get("warns", 0), *margin_order(r["lowest"], r.get("margin_unit")))
 
     drawn = sorted((r for r in shown if r["samples"] is not None and r["varies"]),
                    key=order)[:MC_CHARTS]
