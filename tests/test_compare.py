@@ -1086,3 +1086,22 @@ def test_a_damaged_list_of_unconnected_pins_is_named(board, key, bad):
     snapshot_path(board).write_text(json.dumps(doc), encoding="utf-8")
     with pytest.raises(InputError, match=f"parts.{ref}.{key}"):
         compare_with_snapshot(design, check_design(design))
+
+
+def test_the_margin_heading_says_how_a_margin_in_seconds_moved():
+    # a slack in seconds has no points: it moved when apart by more than the threshold
+    # of itself (changes._margin_moved), and the heading says so where the list holds one
+    from pinlib.studies.compare.changes import ChangeList, MarginChange, StatusChange
+
+    rel = MarginChange(StatusChange("flash", "copi-setup", "U7", "pass", "pass",
+                                    old_margin=0.40, new_margin=0.30))
+    sec = MarginChange(StatusChange("flash", "cipo-setup", "U7", "pass", "pass",
+                                    old_margin=12e-9, new_margin=5e-9, old_margin_unit="s",
+                                    new_margin_unit="s"))
+    only_rel = ChangeList(0.05, "pass", "pass", margin_changes=[rel])
+    both = ChangeList(0.05, "pass", "pass", margin_changes=[rel, sec])
+    assert only_rel.margin_heading() == "Margins that moved more than 5 points (status " \
+                                        "unchanged)"
+    assert both.margin_heading() == ("Margins that moved more than 5 points, or 5 % of "
+                                     "themselves in volts or seconds (status unchanged)")
+    assert both.margin_heading() + ":" in both.format_text()

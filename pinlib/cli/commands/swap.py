@@ -366,8 +366,7 @@ def _text(design, swap_rows, rows, before, after, changes, detail=False) -> list
     else:
         out.append("No check changed status.")
     if changes.margin_changes:
-        out.append(f"Margins that moved more than {changes.threshold * 100:g} points "
-                   "(status unchanged):")
+        out.append(changes.margin_heading() + ":")
         out += ["  " + c.format() for c in changes.margin_changes]
     moved = _moved(rows)
     if detail:

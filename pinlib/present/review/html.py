@@ -360,8 +360,7 @@ class _Html:
                        "</td></tr>")
             self.w("</tbody></table></div>")
         if cl.margin_changes:
-            self.w(f"<h3>Margins that moved more than {cl.threshold * 100:g} points "
-                   "(status unchanged)</h3>", "<ul>",
+            self.w(f"<h3>{_e(cl.margin_heading())}</h3>", "<ul>",
                    *[f"<li>{_e(c.format())}</li>" for c in cl.margin_changes], "</ul>")
         if cl.figure_changes:
             self.w(f"<h3>Figures that moved more than {_e(pct)}</h3>", _TABLE + "<thead><tr>"

@@ -368,6 +368,17 @@ class ChangeList:
         return not (self.status_changes or self.figure_changes or self.part_changes
                     or self.groups or self.margin_changes)
 
+    def margin_heading(self) -> str:
+        """The heading of :attr:`margin_changes`: points for the relative margins, and
+        how a margin in volts or seconds counts as moved where the list holds one
+        (:func:`_margin_moved`)."""
+        pts = f"{self.threshold * 100:g}"
+        units = any(c.change.old_margin_unit or c.change.new_margin_unit
+                    for c in self.margin_changes)
+        how = (f"{pts} points, or {pts} % of themselves in volts or seconds" if units
+               else f"{pts} points")
+        return f"Margins that moved more than {how} (status unchanged)"
+
     def rename_lines(self) -> list[str]:
         """``bus i2c renamed to sensors-bus``, ``U6 renamed to U16``."""
         return [f"{'bus ' if kind == 'bus' else ''}{old} renamed to {new}"
@@ -417,8 +428,7 @@ class ChangeList:
             out.append("Checks whose status changed:")
             out += ["  " + c.format() for c in self.status_changes]
         if self.margin_changes:
-            out.append(f"Margins that moved more than {self.threshold * 100:g} points "
-                       "(status unchanged):")
+            out.append(self.margin_heading() + ":")
             out += ["  " + c.format() for c in self.margin_changes]
         if self.figure_changes:
             out.append(f"Figures that moved more than {pct}:")
