@@ -573,7 +573,21 @@ def test_an_overshoot_figure_at_a_pin_no_check_covers_is_explained(tmp_path):
     # part states no abs_max there); the line said a number no check or device explained
     from pinlib.core.quantity import format_si
 
-    _, bus = _check(HEAD + """lines.cipo = { route = [
+    # a peripheral class whose CIPO pin states no rating (the built-in classes now give
+    # every pin one): the test part without its cipo abs_max (invented)
+    lib = tmp_path / "unrated"
+    lib.mkdir()
+    part = (Path(__file__).parent / "data" / "pushpull" / "pp-periph.toml").read_text(
+        encoding="utf-8").replace('id = "pp-periph"', 'id = "periph-unrated"')
+    cut = 'r_out = "30 Ω"\nabs_max = "VDD + 0.5 V"\n'
+    assert cut in part
+    (lib / "periph-unrated.toml").write_text(part.replace(cut, 'r_out = "30 Ω"\n'),
+                                              encoding="utf-8")
+    unrated = HEAD.replace('title = "route test (invented)"\n',
+                           f'title = "route test (invented)"\nlibrary = ["{lib.as_posix()}"]\n'
+                           ).replace('part = "nor-flash-spi"', 'part = "periph-unrated"')
+    assert unrated.count("periph-unrated") == 2
+    _, bus = _check(unrated + """lines.cipo = { route = [
   { from = "U1", to = "U2", length = "2 cm", geometry = "g" },
   { from = "U2", to = "U3", length = "13 cm", geometry = "g" },
 ] }
@@ -917,3 +931,17 @@ def test_candidates_at_a_junction_say_it_is_one(capsys):
     err = " ".join(capsys.readouterr().err.split())
     assert "no device with this reference (got 'T1')" in err
     assert "T1 is a junction of the route of shared.sclk, not a device; devices: U1" in err
+
+
+def test_an_idle_peripherals_cipo_pin_is_checked_against_its_rating(tmp_path):
+    # the built-in peripheral classes rate every pin (VDD + 0.4 V, typical of the class):
+    # while U2 drives CIPO, U3's output sits idle on the line and its rating applies
+    _, bus = _check(CIPO_CHAIN, tmp_path)
+    cipo = _line(bus, "cipo")
+    for name in ("overshoot", "undershoot"):
+        got = _by_subject(cipo, name)
+        assert {"U1", "U2", "U3"} <= set(got), name
+        # the line's figure is the worst at any pin, and now a check covers each
+        assert cipo.figures[name].value == pytest.approx(max(c.value for c in got.values()),
+                                                         rel=1e-12)
+    assert not any("no check covers" in n for n in cipo.notes)
