@@ -243,17 +243,7 @@ def test_a_point_naming_a_device_of_another_bus_is_refused(tmp_path):
     # U9 is wired to an I2C bus of the design and named on the SPI route without being
     # listed on the SPI bus: read as a junction it left the chip off the line and the
     # design passed; now the point is named, with the bus it sits on
-    i2c = """
-[[bus]]
-id = "sensors"
-protocol = "i2c"
-supply = "3.3 V"
-trace = { length = "5 cm", geometry = "g" }
-devices = [
-  { ref = "U1", part = "mcu-3v3", role = "controller" },
-  { ref = "U9", part = "eeprom-i2c" },
-]
-"""
+    i2c = _I2C_U9
     path = _design(tmp_path, _stretch("U1", "U2"), _stretch("U2", "U3"),
                    _stretch("U3", "U9"))
     path.write_text(path.read_text(encoding="utf-8") + i2c, encoding="utf-8")
