@@ -149,6 +149,77 @@ capacitance = "1.1 pF/cm"
 delay = "60 ps/cm"
 """
 
+#: A routed SPI bus (invented): a stub off a trunk, a daisy chain, stretches by geometry
+#: and by per-length values, one key a line so that the damage reaches each of them.
+ROUTE_DESIGN = """\
+format = "pinlib.design/1"
+title = "Fuzz route board (invented)"
+
+[board.geometry.g]
+kind = "microstrip"
+width = "0.2 mm"
+height = "0.18 mm"
+er = 4.2
+
+[[bus]]
+id = "spi"
+protocol = "spi"
+spi_mode = 0
+clock = "10 MHz"
+supply = "3.3 V"
+
+[[bus.devices]]
+ref = "U1"
+part = "mcu-3v3"
+role = "controller"
+
+[[bus.devices]]
+ref = "U2"
+part = "nor-flash-spi"
+
+[[bus.devices]]
+ref = "U3"
+part = "adc-spi"
+
+[bus.lines.sclk]
+series_resistor = "auto"
+
+[[bus.lines.sclk.route]]
+from = "U1"
+to = "T1"
+length = "2 cm"
+geometry = "g"
+
+[[bus.lines.sclk.route]]
+from = "T1"
+to = "U2"
+length = "1 cm"
+geometry = "g"
+
+[[bus.lines.sclk.route]]
+from = "T1"
+to = "U3"
+length = "6 cm"
+capacitance = "1 pF/cm"
+delay = "60 ps/cm"
+
+[[bus.lines.cipo.route]]
+from = "U1"
+to = "U2"
+length = "2 cm"
+geometry = "g"
+
+[[bus.lines.cipo.route]]
+from = "U2"
+to = "U3"
+length = "5 cm"
+geometry = "g"
+
+[bus.lines.copi]
+length = "3 cm"
+geometry = "g"
+"""
+
 # Lines whose damage is another item's to fix (see the module's docstring): kept as they are.
 _KEPT = {"PART": ('min = "1.7 V"',)}  # issue 14.4: a supply minimum of zero or below
 
@@ -322,6 +393,9 @@ def test_the_base_files_are_valid(tmp_path_factory):
     _, design_path, _ = _folder(tmp_path_factory)
     result = _contract(lambda: check_file(design_path), (design_path,))
     assert result is not None and len(result.buses) == 2
+    _, route_path, _ = _folder(tmp_path_factory, design=ROUTE_DESIGN)
+    routed = _contract(lambda: check_file(route_path), (route_path,))
+    assert routed is not None and routed.buses[0].workings.lines["sclk"].net is not None
 
 
 # ----------------------------------------------------------------------- the Python API
@@ -329,6 +403,13 @@ def test_the_base_files_are_valid(tmp_path_factory):
 @FUZZ
 @given(text=damaged(DESIGN, "DESIGN"))
 def test_a_damaged_design_gives_a_result_or_an_error_naming_it(tmp_path_factory, text):
+    _, design_path, part_path = _folder(tmp_path_factory, design=text)
+    _contract(lambda: check_file(design_path), (design_path, part_path))
+
+
+@FUZZ
+@given(text=damaged(ROUTE_DESIGN, "ROUTE_DESIGN"))
+def test_a_damaged_route_gives_a_result_or_an_error_naming_it(tmp_path_factory, text):
     _, design_path, part_path = _folder(tmp_path_factory, design=text)
     _contract(lambda: check_file(design_path), (design_path, part_path))
 
