@@ -530,7 +530,26 @@ def test_a_cs_line_shared_by_several_peripherals_says_what_it_stands_for(tmp_pat
     d, bus = write_design(tmp_path, peripherals=("pp-periph", "pp-periph"))
     notes = [n for n in evaluate_bus(bus, d).notes if n.startswith("cs: solved as one net")]
     assert len(notes) == 1 and "CS pins of U2 and U3 together" in notes[0]
-    assert "faster" in notes[0]
+    assert "faster" in notes[0] and "GPIO bus of its own" in notes[0]
+    # ... and that way works: a GPIO bus of the controller's and U2's cs pins (invented)
+    gpio = (tmp_path / "d.toml").read_text(encoding="utf-8") + """
+[[bus]]
+id = "cs-u2"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "pp-ctrl", role = "controller", pin = "cs" },
+  { ref = "U2", part = "pp-periph", pin = "cs" },
+]
+lines.cs_u2 = { length = "5 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }
+"""
+    (tmp_path / "gpio.toml").write_text(gpio, encoding="utf-8")
+    dg = load_design(tmp_path / "gpio.toml")
+    own = evaluate_bus(dg.bus("cs-u2"), dg)
+    shared = next(x for x in evaluate_bus(dg.bus("s"), dg).lines if x.signal == "cs")
+    # one CS pin on the line, not two: the lighter load
+    assert own.lines[0].figures["load_capacitance"].value < \
+        shared.figures["load_capacitance"].value
     d1, bus1 = write_design(tmp_path, name="one.toml")
     assert not any(n.startswith("cs: solved") for n in evaluate_bus(bus1, d1).notes)
     # a route drawn for cs is the one net the user drew: no note

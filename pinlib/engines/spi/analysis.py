@@ -271,8 +271,9 @@ def _shared_cs_note(controller: Device, pins: list) -> str:
     return (f"cs: solved as one net from {controller.ref} to the CS pins of {named} "
             "together; where each peripheral has a chip select of its own (the usual "
             "board), each of those lines carries one pin, so its edges are faster and "
-            "may overshoot and ring more than shown (a route drawn for cs is taken as "
-            "the one net it draws)")
+            "may overshoot and ring more than shown: to check each on its own, describe "
+            "it on a GPIO bus of its own (the controller's and that peripheral's cs pins; "
+            "a route drawn for cs is taken as the one net it draws)")
 
 
 def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
