@@ -152,6 +152,68 @@ def test_inherited_bad_value_points_at_the_parent_file(builtin, tmp_path):
     assert all(e.field == "pins.scl.leakage" for e in lib.problems)
 
 
+def test_a_threshold_that_crosses_the_class_s_is_blamed_on_the_team_file(builtin, tmp_path):
+    # invented: the team part writes v_il 0.9 VDD over BASE's v_ih 0.7 VDD. The check
+    # of the pin as a whole was blamed on the file that first wrote [pins.sda] (a
+    # built-in class, for a team part), and `parts check FOLDER` then left it out
+    team = tmp_path / "team"
+    path = write(team, "x.toml", part("x", "base", """
+        [pins.sda]
+        c_in = "8 pF"
+        v_il = { value = "0.9 VDD", source = "rev A, table 5" }
+        """))
+    lib = load_library([team])
+    assert "x" not in lib.parts
+    (err,) = lib.problems
+    assert (err.file, err.line, err.field) == (str(path), line_of_text(path, "0.9 VDD"),
+                                               "pins.sda.v_il")
+    assert "0.9 VDD" in err.problem and "0.7 VDD" in err.problem
+
+
+def test_a_threshold_the_class_moved_is_blamed_on_the_class(builtin, tmp_path):
+    # invented: mid writes v_ih 0.2 VDD under BASE's v_il 0.3 VDD; leaf changes only
+    # c_in. Both fail at mid's v_ih, the value that made the pair impossible
+    team = tmp_path / "team"
+    mid = write(team, "mid.toml", part("mid", "base", '[pins.sda]\nv_ih = "0.2 VDD"\n'))
+    write(team, "leaf.toml", part("leaf", "mid", '[pins.sda]\nc_in = "8 pF"\n'))
+    lib = load_library([team])
+    assert "mid" not in lib.parts and "leaf" not in lib.parts
+    assert {(e.file, e.line, e.field) for e in lib.problems} == {
+        (str(mid), line_of_text(mid, "0.2 VDD"), "pins.sda.v_ih")}
+
+
+def test_a_supply_min_above_the_class_s_max_is_blamed_on_the_team_file(builtin, tmp_path):
+    # invented: BASE runs to 5.5 V; the team part raises only the minimum, to 6 V. The
+    # error named BASE's supply line and its max (got '5.5 V'), a file not to edit
+    team = tmp_path / "team"
+    path = write(team, "x.toml", part("x", "base", 'supply = { min = "6 V" }\n'))
+    lib = load_library([team])
+    (err,) = lib.problems
+    assert (err.file, err.line, err.field) == (str(path), line_of_text(path, "6 V"),
+                                               "supply.min")
+    assert err.value == "6 V" and "5.5 V" in err.problem
+
+
+def test_a_drive_that_drops_the_class_s_fast_corner_is_blamed_on_the_team_file(builtin,
+                                                                              tmp_path):
+    # invented: a push-pull class with a fast corner; the team part makes the pin an
+    # input, which may not have one
+    team = tmp_path / "team"
+    write(team, "pp.toml", part("pp", None, """
+        [pins.sclk]
+        function = "spi-sclk"
+        drive = "push-pull"
+        r_out = "40 Ω"
+        fast = { r_out = "12 Ω" }
+        """))
+    path = write(team, "x.toml", part("x", "pp", '[pins.sclk]\ndrive = "input"\n'))
+    lib = load_library([team])
+    assert "pp" in lib.parts
+    (err,) = lib.problems
+    assert (err.file, err.line, err.field) == (str(path), line_of_text(path, "input"),
+                                               "pins.sclk.drive")
+
+
 def test_strict_raises_the_first_problem(builtin, tmp_path):
     team = tmp_path / "team"
     write(team, "x.toml", part("x", "base", '[pins.sda]\nc_in = "10 pH"\n'))
