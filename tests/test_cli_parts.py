@@ -476,6 +476,29 @@ def test_check_folder_reports_a_broken_parent(lib, capsys, tmp_path):
     assert code == 1 and "team/eeprom.toml" in out and "base.toml" in out
 
 
+@pytest.mark.parametrize("where", [(), ("team",)])
+def test_check_lists_a_problem_two_parts_inherit_once(lib, capsys, where):
+    # invented: eeprom writes supply.min 4 V beside its own max 3.6 V, and leaf extends
+    # it. Each part failed with the same error (file, line, field), and the list gave
+    # it once per part: two problems for one
+    _, team = lib
+    (team / "eeprom.toml").write_text(EEPROM.replace('supply = { max = "3.6 V" }',
+                                                     'supply = { min = "4 V", max = "3.6 V" }'),
+                                      encoding="utf-8")
+    (team / "leaf.toml").write_text('format = "pinlib.part/1"\nid = "leaf"\ntitle = "t"\n'
+                                    'category = "memory"\nextends = "eeprom"\n',
+                                    encoding="utf-8")
+    lib_option = () if where else ("--library", "team")
+    code, out, _ = run(capsys, "parts", "check", *lib_option, *where)
+    lines = out.splitlines()
+    supply = [x for x in lines if "supply max 3.6 V is below min 4 V" in x]
+    assert code == 1 and len(supply) == 1, out
+    assert supply[0].startswith("team/eeprom.toml:7, field 'supply.max'")
+    code, out, _ = run(capsys, "parts", "check", *lib_option, *where, "--json")
+    problems = [p for p in json.loads(out)["problems"] if p["field"] == "supply.max"]
+    assert len(problems) == 1
+
+
 def test_check_missing_folder(lib, capsys):
     code, _, err = run(capsys, "parts", "check", "nowhere")
     assert code == 2 and "not a folder" in err
