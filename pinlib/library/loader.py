@@ -378,6 +378,10 @@ class Library:
     def closest(self, part_id: str, n: int = 3) -> list[str]:
         return nearby.closest(part_id, self.parts, n=n, cutoff=0.4)
 
+    def team_folders(self) -> list[Path]:
+        """The folders read besides the built-in library, in order."""
+        return [f for f in self.folders if f != BUILTIN_DIR]
+
     def get(self, part_id: str, *, file=None, line=None, field=None) -> Part:
         """The part with this id.
 
