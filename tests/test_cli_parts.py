@@ -512,6 +512,18 @@ def test_new_into_a_file_says_to_name_its_folder(lib, capsys):
     assert code == 2 and "not a folder" in err and "not a file in it (e.g. team)" in err
 
 
+def test_new_into_a_folder_no_library_may_be_is_refused(lib, capsys, tmp_path, monkeypatch):
+    # "--into /" (or the home folder) wrote /x9.toml and said "pass --library /", a folder
+    # every command then refuses as a library: a part file nothing could ever read
+    home = tmp_path / "home"
+    home.mkdir()
+    monkeypatch.setenv("HOME", str(home))
+    code, _, err = run(capsys, "parts", "new", "x9", "--from", "base", "--into", str(home))
+    err = " ".join(err.split())
+    assert code == 2 and "a library folder may not be a system folder" in err, err
+    assert "--into" in err and not list(home.iterdir())
+
+
 # --- schema ------------------------------------------------------------------------------
 
 def test_schema_stdout_and_file(lib, capsys, tmp_path):

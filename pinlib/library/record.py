@@ -58,6 +58,14 @@ def team_folder(into_folder, why: str) -> Path:
     library is refused (``why`` says what belongs elsewhere)."""
     folder = Path(into_folder)
     _refuse_builtin(folder, why, "name a team library folder with --into")
+    from pinlib.library.walk import _system_folder
+
+    real = folder.resolve()
+    if _system_folder(real):
+        # a file written there could never be read: no library folder may be one
+        raise LibraryError(M.LIBRARY_IS_SYSTEM_FOLDER.format(real=real), file=str(folder),
+                           field="--into",
+                           hint="name a folder of its own for the team's parts, e.g. ./parts")
     if folder.exists() and not folder.is_dir():
         raise WriteError(M.NOT_A_FOLDER, file=str(folder),
                          expected="the team library folder the part file goes in",
