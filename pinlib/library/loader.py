@@ -100,6 +100,12 @@ def read_part_file(path: Path, *, builtin: bool = False) -> PartFile:
     return pf
 
 
+#: The unknown keys of one file answered with the closest field as well: past them, each
+#: is still named with its table's fields (a file of 50,000 misspelt keys spent seconds
+#: of every command guessing).
+MAX_CLOSEST_HINTS = 100
+
+
 def record_errors(exc: RecordError, *, file=None, locate=None, cls=LibraryError,
                   origin_file=None, model: type[Record] = Part,
                   format_name: str = "part", blame=None) -> list[PinlibError]:
@@ -112,6 +118,7 @@ def record_errors(exc: RecordError, *, file=None, locate=None, cls=LibraryError,
     (``(loc, value)``) for an issue of several fields (its ``related``), else None.
     """
     out: list[PinlibError] = []
+    guessed = 0
     for issue in exc.issues:
         loc = issue.loc
         moved = blame(issue) if blame is not None and issue.related else None
@@ -135,7 +142,9 @@ def record_errors(exc: RecordError, *, file=None, locate=None, cls=LibraryError,
             # here: the field tables are built only to answer a misspelt key
             from pinlib.library.fields import unknown_field_help
 
-            expected, hint = unknown_field_help(model, loc, format_name)
+            expected, hint = unknown_field_help(model, loc, format_name,
+                                                closest=guessed < MAX_CLOSEST_HINTS)
+            guessed += 1
         value = issue.value if not isinstance(issue.value, dict) else None
         out.append(cls(issue.problem, file=where, line=line, field=dotted, value=value,
                        expected=expected, hint=hint))
