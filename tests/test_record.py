@@ -254,6 +254,8 @@ def test_a_typical_value_is_held_to_the_limits_of_its_field(lib_dirs, typ, match
 @pytest.mark.parametrize(("field", "match"), [
     ("sda.cin", "closest: c_in"), ("cs.c_in", "no such pin"), ("sda.function", "no recorded"),
     ("sda.edges", "list"), ("timing", "table"), ("timing.fmax", "f_max"),
+    # the pin as the datasheet spells it: pin names are the file's, case and all
+    ("SDA.c_in", "no such pin.*closest: sda"), ("sdaa.c_in", "closest: sda"),
 ])
 def test_unknown_fields_are_refused(lib_dirs, field, match):
     _, team = lib_dirs

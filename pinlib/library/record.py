@@ -27,6 +27,7 @@ import tomlkit
 from tomlkit.items import InlineTable, Table
 
 from pinlib.core import messages as M
+from pinlib.core import nearby
 from pinlib.core.commandtext import continued_lines
 from pinlib.core.errors import InputError, LibraryError, PinlibError, WriteError
 from pinlib.core.tomlfile import atomic_write, file_lock, line_index, line_of, tomllib
@@ -536,10 +537,16 @@ def _check_pin_exists(library, part_id, pf, data, keys) -> None:
     if at == 0 and not node and isinstance(merged.get("sides"), dict) and merged["sides"]:
         _refuse_top_level_pin(merged["sides"], keys)
     if not isinstance(node, dict) or pin not in node:
-        names = ", ".join(sorted(node)) if isinstance(node, dict) and node else "none"
+        held = sorted(node) if isinstance(node, dict) else []
+        # "SDA" for sda (the datasheet's spelling): the likeness of names ignores case
+        by_lower = {str(n).lower(): str(n) for n in held}
+        near = nearby.closest(pin.lower(), by_lower)
+        hint = "a new pin needs its function: add its table to the file by hand"
+        if near:
+            hint = "closest: " + ", ".join(by_lower[n] for n in near) + "; " + hint
         raise LibraryError(M.NO_SUCH_PIN, field=".".join(keys[: at + 2]),
-                           value=pin, expected=f"one of its pins ({names})",
-                           hint="a new pin needs its function: add its table to the file by hand")
+                           value=pin, expected=f"one of its pins ({', '.join(held) or 'none'})",
+                           hint=hint)
 
 
 def _refuse_top_level_pin(sides: dict, keys: tuple[str, ...]) -> None:
