@@ -368,6 +368,10 @@ def test_new_refusals(lib, capsys):
     assert code == 2 and "exists" in err
     code, _, err = run(capsys, "parts", "new", "x", "--from", "bse", "--into", "team")
     assert code == 2 and "closest in the library: base" in err
+    # the class typed after --from (it said field 'extends', the file's key), and where
+    # a team class was looked for, as 'parts show' says
+    err = " ".join(err.split())
+    assert "field '--from'" in err and "team folders are read from PINLIB_LIBRARY" in err
     code, _, err = run(capsys, "parts", "new", "x", "--from", "base", "--into", "builtin")
     assert code == 2 and "built-in" in err
 

@@ -494,6 +494,15 @@ def _run_new(args) -> int:
 
     folder = Path(args.into) if args.into else _default_folder(args)
     lib = _load(args)
+    if args.from_class not in lib.files:
+        try:
+            lib.get(args.from_class)
+        except InputError as err:  # unknown: say where team classes were looked for
+            from pinlib.library.folders import team_folders_hint
+
+            raise InputError(err.problem, field="--from", value=args.from_class,
+                             hint="; ".join(h for h in (err.hint, team_folders_hint(
+                                 args.library)) if h)) from None
     path = new_part(lib, args.id, args.from_class, folder, title=args.title,
                     source=args.source)
     print(fitted(f"created {_rel(path)} (extends {args.from_class})"))
