@@ -388,6 +388,12 @@ def test_record_refusals_leave_files_alone(lib, capsys):
     assert code == 2 and "built-in" in err and "pinlib parts new" in err
     assert (team / "eeprom.toml").read_bytes() == before
     assert (builtin / "flash.toml").read_text(encoding="utf-8") == FLASH
+    # a team part recorded into in a shell without its folder: said only "unknown part"
+    code, _, err = run(capsys, "parts", "record", "eeprom", "sda.c_in", "5 pF",
+                       "--source", "rev B")
+    err = " ".join(err.split())
+    assert code == 2 and "field 'ID'" in err and "unknown part (got 'eeprom')" in err
+    assert "team folders are read from PINLIB_LIBRARY (not set)" in err
 
 
 @pytest.mark.parametrize("typ, problem", [("banana", "not a number with a unit"),

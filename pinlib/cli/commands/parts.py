@@ -405,19 +405,27 @@ def _typ_text(entry) -> str:
     return typ if isinstance(typ, str) else format_si(typ, entry["unit"])
 
 
+def _refuse_unknown(lib, pid: str, field: str, args) -> None:
+    """An id no file of the library holds is an error naming the argument that gave it,
+    the closest ids and where team parts were looked for (a shell without
+    PINLIB_LIBRARY reads like a misspelt id otherwise)."""
+    if pid in lib.files:
+        return
+    try:
+        lib.get(pid)
+    except InputError as err:
+        from pinlib.library.folders import team_folders_hint
+
+        raise InputError(err.problem, field=field, value=pid, hint="; ".join(
+            h for h in (err.hint, team_folders_hint(args.library)) if h)) from None
+
+
 def _run_show(args) -> int:
     from pinlib.core.quantity import format_si
     from pinlib.present.terminal import width, wrap
 
     lib = _load(args)
-    if args.id not in lib.files:
-        try:
-            lib.get(args.id)
-        except InputError as err:  # unknown: say where team parts were looked for
-            from pinlib.library.folders import team_folders_hint
-
-            raise InputError(err.problem, field="ID", value=args.id, hint="; ".join(
-                h for h in (err.hint, team_folders_hint(args.library)) if h)) from None
+    _refuse_unknown(lib, args.id, "ID", args)
     data = _show_data(lib, args.id)
     if args.json:
         print(json.dumps(data, indent=2, ensure_ascii=False))
@@ -494,15 +502,7 @@ def _run_new(args) -> int:
 
     folder = Path(args.into) if args.into else _default_folder(args)
     lib = _load(args)
-    if args.from_class not in lib.files:
-        try:
-            lib.get(args.from_class)
-        except InputError as err:  # unknown: say where team classes were looked for
-            from pinlib.library.folders import team_folders_hint
-
-            raise InputError(err.problem, field="--from", value=args.from_class,
-                             hint="; ".join(h for h in (err.hint, team_folders_hint(
-                                 args.library)) if h)) from None
+    _refuse_unknown(lib, args.from_class, "--from", args)
     path = new_part(lib, args.id, args.from_class, folder, title=args.title,
                     source=args.source)
     print(fitted(f"created {_rel(path)} (extends {args.from_class})"))
@@ -527,6 +527,7 @@ def _run_record(args) -> int:
     from pinlib.library.record import record_value
 
     lib = _load(args)
+    _refuse_unknown(lib, args.id, "ID", args)
     keys, _ = resolve_path(args.field)
     was = _value_before(lib, args.id, ".".join(keys), typ_given=args.typ is not None)
     path = record_value(lib, args.id, args.field, args.value, args.source,
