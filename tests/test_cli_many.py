@@ -578,6 +578,19 @@ def test_new_with_a_team_library_writes_its_library_line(tmp_path, capsys):
     assert main(["check", str(path)]) in (0, 1)
 
 
+def test_new_with_an_unknown_part_says_where_team_parts_were_looked_for(tmp_path, capsys,
+                                                                       monkeypatch):
+    # a team part named in a shell without PINLIB_LIBRARY read like a misspelt id
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    monkeypatch.setenv("COLUMNS", "1000")
+    path = tmp_path / "board.toml"
+    assert main(["new", str(path), "--part", "U1=mcu-3v3", "--part", "U2=eeprom-team"]) == 2
+    err = capsys.readouterr().err
+    assert "field '--part': unknown part (got 'eeprom-team')" in err
+    assert "team folders are read from PINLIB_LIBRARY (not set) and --library (none given)" \
+        in err and not path.exists()
+
+
 def test_the_route_example_of_a_new_design_holds_every_device(tmp_path):
     # the commented route went from the controller to the first peripheral only: with a
     # second one on the bus, the example uncommented was refused (U3 at no point)
