@@ -265,6 +265,15 @@ def test_unknown_fields_are_refused(lib_dirs, field, match):
     assert (team / "child.toml").read_bytes() == before
 
 
+def test_a_source_pasted_over_two_lines_is_written_as_one(lib_dirs):
+    # a source copied out of a PDF's table caption kept its line break: the file held
+    # "rev C,\n table 7.5", and every listing of the source broke its line there
+    _, team = lib_dirs
+    record_value(load(team), "child", "sda.c_in", "6 pF", "rev C,\n  table 7.5\t")
+    c_in = load(team).parts["child"].pins["sda"].c_in
+    assert c_in.source == "rev C, table 7.5"
+
+
 def test_a_source_and_a_known_basis_are_required(lib_dirs):
     _, team = lib_dirs
     lib = load(team)

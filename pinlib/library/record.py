@@ -93,6 +93,12 @@ def _check_id(new_id: object) -> str:
     return new_id
 
 
+def one_line(text: str) -> str:
+    """A source as one line: a line break or tab pasted with it (a caption copied out
+    of a PDF) and any run of white space become one space, the ends stripped."""
+    return " ".join(text.split())
+
+
 def _toml_string(text: str) -> str:
     return tomlkit.string(text).as_string()
 
@@ -188,7 +194,7 @@ def new_part(library: loader.Library, new_id: str, from_class: str,
 def _provenance_lines(basis: str, source: str, today: _dt.date) -> list[str]:
     """The new file's ``provenance`` line: without a source no empty one is written, and a
     basis that names a document says, in a comment, what to fill in."""
-    source = source.strip() if isinstance(source, str) else ""
+    source = one_line(source) if isinstance(source, str) else ""
     bits = [f"basis = {_toml_string(basis)}"]
     if source:
         bits.append(f"source = {_toml_string(source)}")
@@ -479,7 +485,7 @@ def record_value(library: loader.Library, part_id: str, field: str, value_text: 
                          expected="one of " + ", ".join(RECORD_BASES + ("generic",)))
     if typ is not None and not (isinstance(typ, str) and typ.strip()):
         raise InputError(M.EMPTY_TYPICAL, field=f"{dotted}.typ", value=typ)
-    item = _value_item(value_text.strip(), basis, source.strip(),
+    item = _value_item(value_text.strip(), basis, one_line(source),
                        None if typ is None else typ.strip())
 
     with file_lock(path):

@@ -524,7 +524,7 @@ def _run_new(args) -> int:
 
 def _run_record(args) -> int:
     from pinlib.library.fields import resolve_path
-    from pinlib.library.record import record_value
+    from pinlib.library.record import one_line, record_value
 
     lib = _load(args)
     _refuse_unknown(lib, args.id, "ID", args)
@@ -535,7 +535,7 @@ def _run_record(args) -> int:
     # as written to the file: stripped, and within the width
     typ = f", typ {args.typ.strip()}" if args.typ else ""
     print(fitted(f"recorded {'.'.join(keys)} = {args.value.strip()}{typ} ({args.basis}: "
-                 f"{args.source.strip()}) in {_rel(path)}"))
+                 f"{one_line(args.source)}) in {_rel(path)}"))
     if was is not None:
         # what the record replaces, so that a measured value or a typical one written
         # over is said, not lost in silence
