@@ -113,6 +113,14 @@ def test_value_table_and_inline_table_lines(builtin, tmp_path):
     assert "basis" in by_field["pins.sda.c_in"].message
 
 
+def test_a_yes_or_no_where_a_value_belongs_is_echoed_as_the_file_wrote_it(builtin, tmp_path):
+    # "(got True)": Python's spelling of the file's true
+    team = tmp_path / "team"
+    write(team, "x.toml", part("x", "base", '[pins.sda]\nv_il = true\n'))
+    (err,) = load_library([team]).problems
+    assert err.field == "pins.sda.v_il" and "(got true)" in err.message
+
+
 def test_unknown_field_and_bare_number(builtin, tmp_path):
     team = tmp_path / "team"
     path = write(team, "x.toml", part("x", "base", """
