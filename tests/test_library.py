@@ -222,6 +222,22 @@ def test_a_drive_that_drops_the_class_s_fast_corner_is_blamed_on_the_team_file(b
                                                "pins.sclk.drive")
 
 
+def test_a_cable_s_capacitance_the_team_zeroed_is_blamed_on_the_team_file(builtin, tmp_path):
+    # invented: a cable class of capacitance and delay; the team part writes 0 pF/m, which
+    # leaves no capacitance to derive the impedance from
+    team = tmp_path / "team"
+    write(team, "cab.toml", 'format = "pinlib.part/1"\nid = "cab"\ntitle = "t"\n'
+                            'category = "cable"\n[line]\ncapacitance = "50 pF/m"\n'
+                            'delay = "5 ns/m"\n')
+    path = write(team, "x.toml", 'format = "pinlib.part/1"\nid = "x"\ntitle = "t"\n'
+                                 'category = "cable"\nextends = "cab"\n[line]\n'
+                                 'capacitance = "0 pF/m"\n')
+    lib = load_library([team])
+    assert "cab" in lib.parts
+    (err,) = lib.problems
+    assert (err.file, err.line, err.field) == (str(path), 7, "line.capacitance")
+
+
 def test_strict_raises_the_first_problem(builtin, tmp_path):
     team = tmp_path / "team"
     write(team, "x.toml", part("x", "base", '[pins.sda]\nc_in = "10 pH"\n'))
