@@ -448,6 +448,26 @@ def test_record_negative_value_after_double_dash(lib, capsys):
     assert data["pins"]["sda"]["v_il"]["value"] == "-0.3 V"
 
 
+def test_record_the_help_s_negative_value_example_runs(lib, capsys):
+    # the help said 'pinlib parts record X -- sda.v_il "-0.3 V" --source S': after '--'
+    # the --source was a positional too, and the command it showed failed ("the
+    # following arguments are required: --source")
+    import shlex
+
+    from pinlib.cli.commands.parts import _EXAMPLES
+
+    lines = [ln.strip() for ln in _EXAMPLES["record"].splitlines()
+             if ln.strip().startswith("pinlib parts record") and '"-' in ln]
+    assert lines
+    for line in lines:
+        words = shlex.split(line)[1:]
+        words = ["eeprom" if w in ("X", "eeprom-acme") else w for w in words]
+        code, _, err = run(capsys, *words[:2], "--library", "team", *words[2:])
+        assert code == 0, (line, err)
+    data = tomllib.loads((lib[1] / "eeprom.toml").read_text(encoding="utf-8"))
+    assert data["pins"]["sda"]["v_il"]["value"].startswith("-")
+
+
 # --- check -------------------------------------------------------------------------------
 
 def test_check_clean(lib, capsys):

@@ -78,8 +78,10 @@ examples:
 FIELD is PIN.FIELD (sda.c_in), timing.FIELD, supply.min|max, sides.a.PIN.FIELD...
 A bridging part (translator, repeater) has its pins per side: sides.a.sda.c_in.
 
-A negative VALUE goes after '--':
-  pinlib parts record X -- sda.v_il "-0.3 V" --source S
+A negative VALUE is written as it is ("-0.3 V", "-300mV"); one that starts with a
+minus and no digit goes after '--', every option before it:
+  pinlib parts record X sda.v_il "-0.3 V" --source S
+  pinlib parts record --source S X -- sda.v_il "-VDD + 3.6 V"
 
 The file keeps its comments and layout; a value that does not validate is refused and
 the file is left as it was. Built-in parts are never written: make a team part first.
