@@ -403,6 +403,10 @@ def test_used_by_finds_direct_and_inherited_uses(tmp_path, capsys, monkeypatch):
     assert main(["parts", "used-by", "eeprom-i2c", "--json"]) == 0
     got = json.loads(capsys.readouterr().out)
     assert [(u["bus"], u["ref"]) for u in got["uses"]] == [("sensors", "U4")]
+    # the designs found below the current folder are named from it, as when given
+    # ('/tmp/.../a.toml' where 'parts used-by eeprom-i2c a.toml' said 'a.toml')
+    assert main(["parts", "used-by", "eeprom-i2c"]) == 0
+    assert capsys.readouterr().out.startswith("a.toml  bus sensors  U4")
     assert main(["parts", "used-by", "i2c-peripheral", "a.toml"]) == 0
     out = capsys.readouterr().out
     assert "U4  eeprom-i2c  (eeprom-i2c → i2c-peripheral)" in out
