@@ -194,6 +194,19 @@ def test_show_head_fits_80_columns(lib, capsys, monkeypatch, tmp_path):
     assert max(len(ln) for ln in out.splitlines()) <= 80, out
 
 
+def test_show_names_what_is_inherited_when_its_column_is_left_out(lib, capsys, monkeypatch):
+    # at 80 columns (the sources of a real class are long) the 'inherited from' column
+    # was left out, and nothing said which values the team part sets and which it takes
+    # from its class: "(not shown at this width: inherited from ...)" alone
+    monkeypatch.setenv("COLUMNS", "60")
+    code, out, _ = run(capsys, "parts", "show", "eeprom", "--library", "team")
+    assert code == 0 and "not shown at this width: inherited from" in out
+    flat = " ".join(out.split())
+    assert ("inherited from base (builtin/base.toml): supply.min, pins.sda.v_il, "
+            "pins.scl.c_in") in flat, out
+    assert max(len(ln) for ln in out.splitlines()) <= 60
+
+
 def test_show_json(lib, capsys):
     code, out, _ = run(capsys, "parts", "show", "eeprom", "--library", "team", "--json")
     data = json.loads(out)

@@ -237,10 +237,11 @@ def _kind(lib, pid) -> str:
 
 
 def _table(rows: list[list[str]], header: list[str], keep: int = 2,
-           left_out: dict[str, str] | None = None) -> str:
+           left_out: dict[str, str | list[str]] | None = None) -> str:
     """The table fitted to the terminal's width (COLUMNS; piped output whole): columns that do not
     fit are left out and named; a long cell wraps inside its column.  ``left_out``: a line
-    to print for a column when it is left out (what it would have told)."""
+    (or lines, each wrapped with its rest indented) to print for a column when it is left
+    out (what it would have told)."""
     from pinlib.core.texttable import fit_table
     from pinlib.present.terminal import table_width, wrap
 
@@ -248,7 +249,11 @@ def _table(rows: list[list[str]], header: list[str], keep: int = 2,
     lines, dropped = fit_table(header, rows, cols, keep=keep, rule=True)
     for column, note in (left_out or {}).items():
         if column in dropped and note:
-            lines += wrap(note, cols, subsequent="")
+            if isinstance(note, str):
+                lines += wrap(note, cols, subsequent="")
+            else:
+                for line in note:
+                    lines += wrap(line, cols)
     if dropped:
         lines += wrap(M.COLUMNS_LEFT_OUT.format(columns=", ".join(dropped)), cols, subsequent="")
     return "\n".join(lines)
@@ -457,6 +462,7 @@ def _run_show(args) -> int:
                        else str(a["value"])] for a in data["attributes"]], ["field", "setting"]))
     print()
     rows = []
+    inherited: dict[str, list[str]] = {}  # "ID (file)" -> the fields taken from it
     for v in data["values"]:
         shown = v["text"]
         unit = v["unit"]
@@ -473,10 +479,17 @@ def _run_show(args) -> int:
         if v["derived"]:
             shown += "  [derived]"
         origin = "" if not v["inherited"] else f"{v['origin']} ({_rel(v['origin_file'])})"
+        if origin:
+            inherited.setdefault(origin, []).append(v["field"])
         rows.append([v["field"], shown, _typ_text(v), basis, v["source"] or "", origin])
     if rows:
+        # too narrow for the column: which values the part takes from which class,
+        # below the table, the nearest class first (what sets a team part apart)
+        depth = {c["id"]: i for i, c in enumerate(data.get("chain", []))}
+        note = [f"inherited from {o}: {', '.join(f)}" for o, f in
+                sorted(inherited.items(), key=lambda item: depth.get(item[0].split()[0], 0))]
         print(_table(rows, ["field", "value", "typ", "basis", "source", "inherited from"],
-                     keep=5))
+                     keep=5, left_out={"inherited from": note}))
     else:
         print("(no values)")
     print()
