@@ -292,6 +292,24 @@ def test_cli_text_and_json(capsys):
     assert [c["part"] for c in data["candidates"]] == ["eeprom-i2c"]
 
 
+def test_cli_names_a_team_part_left_out_for_its_problem(tmp_path, capsys, monkeypatch):
+    # invented: a team memory part written with "5 pf". It was left out of the ranking
+    # without a word, so the part the user had just written seemed not to fit
+    team = tmp_path / "team"
+    team.mkdir()
+    bad = team / "eeprom-typo.toml"
+    bad.write_text('format = "pinlib.part/1"\nid = "eeprom-typo"\ntitle = "t"\n'
+                   'category = "memory"\nextends = "eeprom-i2c"\n[pins.sda]\n'
+                   'c_in = "5 pf"\n', encoding="utf-8")
+    monkeypatch.setenv("COLUMNS", "1000")
+    assert main(["candidates", str(DEMO), "U4", "--category", "memory",
+                 "--library", str(team)]) == 0
+    out, err = capsys.readouterr()
+    assert "eeprom-typo" not in out
+    assert "1 problem(s) in the library (run 'pinlib parts check')" in err
+    assert f"{bad}:7, field 'pins.sda.c_in'" in err
+
+
 def test_cli_exit_codes(tmp_path, capsys):
     assert main(["candidates", str(DEMO), "U99"]) == 2
     assert "no device with this reference" in capsys.readouterr().err

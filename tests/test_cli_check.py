@@ -166,6 +166,37 @@ devices = [
     assert main(["check", str(design), "--library", str(PARTS)]) == 0
 
 
+def test_an_unknown_part_names_the_team_folders_read(tmp_path, capsys, monkeypatch):
+    # A design written while PINLIB_LIBRARY named the team folder, checked in a shell
+    # where it is not set: "unknown part 't-target'; closest in the library: ..." did not
+    # say that no team folder had been read at all
+    design = tmp_path / "d.toml"
+    design.write_text("""format = "pinlib.design/1"
+title = "a team part, no team folder"
+
+[[bus]]
+id = "b"
+protocol = "i2c"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "t-target" },
+]
+""", encoding="utf-8")
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    monkeypatch.setenv("COLUMNS", "1000")
+    assert main(["check", str(design)]) == 2
+    err = capsys.readouterr().err
+    assert "unknown part" in err and "d.toml:10" in err
+    assert "team folders read: none (PINLIB_LIBRARY, the design's library line and " \
+           "--library name none)" in err
+    empty = tmp_path / "team"
+    empty.mkdir()
+    monkeypatch.setenv("PINLIB_LIBRARY", str(empty))
+    assert main(["check", str(design)]) == 2
+    assert f"team folders read: {empty}" in capsys.readouterr().err
+
+
 def test_help_has_an_example(capsys):
     with pytest.raises(SystemExit) as info:
         main(["check", "--help"])

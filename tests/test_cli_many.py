@@ -403,6 +403,10 @@ def test_used_by_finds_direct_and_inherited_uses(tmp_path, capsys, monkeypatch):
     assert main(["parts", "used-by", "eeprom-i2c", "--json"]) == 0
     got = json.loads(capsys.readouterr().out)
     assert [(u["bus"], u["ref"]) for u in got["uses"]] == [("sensors", "U4")]
+    # the designs found below the current folder are named from it, as when given
+    # ('/tmp/.../a.toml' where 'parts used-by eeprom-i2c a.toml' said 'a.toml')
+    assert main(["parts", "used-by", "eeprom-i2c"]) == 0
+    assert capsys.readouterr().out.startswith("a.toml  bus sensors  U4")
     assert main(["parts", "used-by", "i2c-peripheral", "a.toml"]) == 0
     out = capsys.readouterr().out
     assert "U4  eeprom-i2c  (eeprom-i2c → i2c-peripheral)" in out
@@ -576,6 +580,19 @@ def test_new_with_a_team_library_writes_its_library_line(tmp_path, capsys):
     design = load_design(path)
     assert [d.part_id for d in design.bus("i2c").devices] == ["mcu-3v3", "eeprom-team"]
     assert main(["check", str(path)]) in (0, 1)
+
+
+def test_new_with_an_unknown_part_says_where_team_parts_were_looked_for(tmp_path, capsys,
+                                                                       monkeypatch):
+    # a team part named in a shell without PINLIB_LIBRARY read like a misspelt id
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    monkeypatch.setenv("COLUMNS", "1000")
+    path = tmp_path / "board.toml"
+    assert main(["new", str(path), "--part", "U1=mcu-3v3", "--part", "U2=eeprom-team"]) == 2
+    err = capsys.readouterr().err
+    assert "field '--part': unknown part (got 'eeprom-team')" in err
+    assert "team folders are read from PINLIB_LIBRARY (not set) and --library (none given)" \
+        in err and not path.exists()
 
 
 def test_the_route_example_of_a_new_design_holds_every_device(tmp_path):

@@ -194,6 +194,19 @@ def test_show_head_fits_80_columns(lib, capsys, monkeypatch, tmp_path):
     assert max(len(ln) for ln in out.splitlines()) <= 80, out
 
 
+def test_show_names_what_is_inherited_when_its_column_is_left_out(lib, capsys, monkeypatch):
+    # at 80 columns (the sources of a real class are long) the 'inherited from' column
+    # was left out, and nothing said which values the team part sets and which it takes
+    # from its class: "(not shown at this width: inherited from ...)" alone
+    monkeypatch.setenv("COLUMNS", "60")
+    code, out, _ = run(capsys, "parts", "show", "eeprom", "--library", "team")
+    assert code == 0 and "not shown at this width: inherited from" in out
+    flat = " ".join(out.split())
+    assert ("inherited from base (builtin/base.toml): supply.min, pins.sda.v_il, "
+            "pins.scl.c_in") in flat, out
+    assert max(len(ln) for ln in out.splitlines()) <= 60
+
+
 def test_show_json(lib, capsys):
     code, out, _ = run(capsys, "parts", "show", "eeprom", "--library", "team", "--json")
     data = json.loads(out)
@@ -368,6 +381,10 @@ def test_new_refusals(lib, capsys):
     assert code == 2 and "exists" in err
     code, _, err = run(capsys, "parts", "new", "x", "--from", "bse", "--into", "team")
     assert code == 2 and "closest in the library: base" in err
+    # the class typed after --from (it said field 'extends', the file's key), and where
+    # a team class was looked for, as 'parts show' says
+    err = " ".join(err.split())
+    assert "field '--from'" in err and "team folders are read from PINLIB_LIBRARY" in err
     code, _, err = run(capsys, "parts", "new", "x", "--from", "base", "--into", "builtin")
     assert code == 2 and "built-in" in err
 
@@ -384,6 +401,12 @@ def test_record_refusals_leave_files_alone(lib, capsys):
     assert code == 2 and "built-in" in err and "pinlib parts new" in err
     assert (team / "eeprom.toml").read_bytes() == before
     assert (builtin / "flash.toml").read_text(encoding="utf-8") == FLASH
+    # a team part recorded into in a shell without its folder: said only "unknown part"
+    code, _, err = run(capsys, "parts", "record", "eeprom", "sda.c_in", "5 pF",
+                       "--source", "rev B")
+    err = " ".join(err.split())
+    assert code == 2 and "field 'ID'" in err and "unknown part (got 'eeprom')" in err
+    assert "team folders are read from PINLIB_LIBRARY (not set)" in err
 
 
 @pytest.mark.parametrize("typ, problem", [("banana", "not a number with a unit"),
@@ -438,6 +461,26 @@ def test_record_negative_value_after_double_dash(lib, capsys):
     assert data["pins"]["sda"]["v_il"]["value"] == "-0.3 V"
 
 
+def test_record_the_help_s_negative_value_example_runs(lib, capsys):
+    # the help said 'pinlib parts record X -- sda.v_il "-0.3 V" --source S': after '--'
+    # the --source was a positional too, and the command it showed failed ("the
+    # following arguments are required: --source")
+    import shlex
+
+    from pinlib.cli.commands.parts import _EXAMPLES
+
+    lines = [ln.strip() for ln in _EXAMPLES["record"].splitlines()
+             if ln.strip().startswith("pinlib parts record") and '"-' in ln]
+    assert lines
+    for line in lines:
+        words = shlex.split(line)[1:]
+        words = ["eeprom" if w in ("X", "eeprom-acme") else w for w in words]
+        code, _, err = run(capsys, *words[:2], "--library", "team", *words[2:])
+        assert code == 0, (line, err)
+    data = tomllib.loads((lib[1] / "eeprom.toml").read_text(encoding="utf-8"))
+    assert data["pins"]["sda"]["v_il"]["value"].startswith("-")
+
+
 # --- check -------------------------------------------------------------------------------
 
 def test_check_clean(lib, capsys):
@@ -476,6 +519,29 @@ def test_check_folder_reports_a_broken_parent(lib, capsys, tmp_path):
     assert code == 1 and "team/eeprom.toml" in out and "base.toml" in out
 
 
+@pytest.mark.parametrize("where", [(), ("team",)])
+def test_check_lists_a_problem_two_parts_inherit_once(lib, capsys, where):
+    # invented: eeprom writes supply.min 4 V beside its own max 3.6 V, and leaf extends
+    # it. Each part failed with the same error (file, line, field), and the list gave
+    # it once per part: two problems for one
+    _, team = lib
+    (team / "eeprom.toml").write_text(EEPROM.replace('supply = { max = "3.6 V" }',
+                                                     'supply = { min = "4 V", max = "3.6 V" }'),
+                                      encoding="utf-8")
+    (team / "leaf.toml").write_text('format = "pinlib.part/1"\nid = "leaf"\ntitle = "t"\n'
+                                    'category = "memory"\nextends = "eeprom"\n',
+                                    encoding="utf-8")
+    lib_option = () if where else ("--library", "team")
+    code, out, _ = run(capsys, "parts", "check", *lib_option, *where)
+    lines = out.splitlines()
+    supply = [x for x in lines if "supply max 3.6 V is below min 4 V" in x]
+    assert code == 1 and len(supply) == 1, out
+    assert supply[0].startswith("team/eeprom.toml:7, field 'supply.max'")
+    code, out, _ = run(capsys, "parts", "check", *lib_option, *where, "--json")
+    problems = [p for p in json.loads(out)["problems"] if p["field"] == "supply.max"]
+    assert len(problems) == 1
+
+
 def test_check_missing_folder(lib, capsys):
     code, _, err = run(capsys, "parts", "check", "nowhere")
     assert code == 2 and "not a folder" in err
@@ -487,6 +553,18 @@ def test_new_into_a_file_says_to_name_its_folder(lib, capsys):
                        "team/eeprom.toml")
     err = " ".join(err.split())
     assert code == 2 and "not a folder" in err and "not a file in it (e.g. team)" in err
+
+
+def test_new_into_a_folder_no_library_may_be_is_refused(lib, capsys, tmp_path, monkeypatch):
+    # "--into /" (or the home folder) wrote /x9.toml and said "pass --library /", a folder
+    # every command then refuses as a library: a part file nothing could ever read
+    home = tmp_path / "home"
+    home.mkdir()
+    monkeypatch.setenv("HOME", str(home))
+    code, _, err = run(capsys, "parts", "new", "x9", "--from", "base", "--into", str(home))
+    err = " ".join(err.split())
+    assert code == 2 and "a library folder may not be a system folder" in err, err
+    assert "--into" in err and not list(home.iterdir())
 
 
 # --- schema ------------------------------------------------------------------------------

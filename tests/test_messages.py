@@ -1833,6 +1833,21 @@ def _(env):
     return " ".join(env.cli("parts", "show", "no-such-part").split())
 
 
+@case("DESIGN_TEAM_FOLDERS", lambda: M.DESIGN_TEAM_FOLDERS.format(folders="TEAM"))
+def _(env):
+    env.write("team/t.toml", PART.format(id="t"))
+    env.monkeypatch.setenv("PINLIB_LIBRARY", str(env.tmp / "team"))
+    got = _fails(lambda e: e.design(I2C_BUS.replace('"eeprom-i2c"', '"no-such-part"')), env)
+    return got.message.replace(str(env.tmp / "team"), "TEAM")
+
+
+@case("NO_TEAM_FOLDERS")
+def _(env):
+    env.monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    got = _fails(lambda e: e.design(I2C_BUS.replace('"eeprom-i2c"', '"no-such-part"')), env)
+    return got.message
+
+
 @case("DESIGN_LIBRARY_NOT_READ")
 def _(env):
     return " ".join(env.cli("parts", "show", "no-such-part").split())

@@ -156,7 +156,8 @@ def test_inline_supply_table_stays_on_its_line(lib_dirs):
     ("sda.c_in", "8", "bare number"),
     ("sda.c_in", "4k7", "plausible range"),
     ("sda.v_il", "0.3 VCC", "relative to the supply"),
-    ("supply.min", "6 V", "would not validate"),
+    # the class runs to 5.5 V: the minimum written is the value refused, not the class
+    ("supply.min", "6 V", "value is refused: supply max 5.5 V is below min 6 V"),
     ("timing.f_max", "-1 MHz", "negative"),
 ])
 def test_refused_value_leaves_the_file_byte_identical(lib_dirs, field, value, match):
@@ -253,6 +254,8 @@ def test_a_typical_value_is_held_to_the_limits_of_its_field(lib_dirs, typ, match
 @pytest.mark.parametrize(("field", "match"), [
     ("sda.cin", "closest: c_in"), ("cs.c_in", "no such pin"), ("sda.function", "no recorded"),
     ("sda.edges", "list"), ("timing", "table"), ("timing.fmax", "f_max"),
+    # the pin as the datasheet spells it: pin names are the file's, case and all
+    ("SDA.c_in", "no such pin.*closest: sda"), ("sdaa.c_in", "closest: sda"),
 ])
 def test_unknown_fields_are_refused(lib_dirs, field, match):
     _, team = lib_dirs
@@ -260,6 +263,15 @@ def test_unknown_fields_are_refused(lib_dirs, field, match):
     with pytest.raises(LibraryError, match=match):
         record_value(load(team), "child", field, "8 pF", "rev C")
     assert (team / "child.toml").read_bytes() == before
+
+
+def test_a_source_pasted_over_two_lines_is_written_as_one(lib_dirs):
+    # a source copied out of a PDF's table caption kept its line break: the file held
+    # "rev C,\n table 7.5", and every listing of the source broke its line there
+    _, team = lib_dirs
+    record_value(load(team), "child", "sda.c_in", "6 pF", "rev C,\n  table 7.5\t")
+    c_in = load(team).parts["child"].pins["sda"].c_in
+    assert c_in.source == "rev C, table 7.5"
 
 
 def test_a_source_and_a_known_basis_are_required(lib_dirs):

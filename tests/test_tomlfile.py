@@ -110,6 +110,11 @@ def test_deep_nesting_is_refused_with_file_and_line(tmp_path):
     # tables nested by a dotted header: the line of the header
     deep.write_text('title = "x"\n[' + ".".join(["t"] * 100) + "]\nv = 1\n", encoding="utf-8")
     assert _refused(deep).line == 2
+    # so deep a header (or dotted key) that the parser itself gave up: no line was named
+    for text in ("[" + ".".join(["t"] * 3000) + "]\nv = 1\n",
+                 ".".join(["t"] * 3000) + " = 1\n"):
+        deep.write_text('title = "x"\n' + text, encoding="utf-8")
+        assert _refused(deep).line == 2
 
 
 def test_the_cli_reports_deep_nesting_as_exit_2(tmp_path, capsys):

@@ -161,6 +161,8 @@ class PinlibError(Exception):
 def _echo(value: object) -> str:
     """The value as a message shows it: its repr, cut to :data:`ECHO_LIMIT` (a long string
     or container is cut before its repr is built, so that stays cheap)."""
+    if isinstance(value, bool):
+        return "true" if value else "false"  # as a TOML file writes it, not True
     if isinstance(value, (str, bytes)) and len(value) > ECHO_LIMIT:
         return f"{value[: ECHO_LIMIT - 20]!r}… ({len(value):,} characters)"
     if isinstance(value, (list, tuple, dict, set)):

@@ -292,6 +292,9 @@ TEAM_FOLDERS_READ = "team folders are read from PINLIB_LIBRARY ({env}) and --lib
 DESIGN_LIBRARY_NOT_READ = ("a design's own library line counts only where the design is read: "
                            "give its folder with --library")
 DESIGN_LIBRARIES_READ = "and the library lines of the designs searched ({n})"
+# an unknown part of a design: where its team parts were looked for
+DESIGN_TEAM_FOLDERS = "team folders read: {folders}"
+NO_TEAM_FOLDERS = "none (PINLIB_LIBRARY, the design's library line and --library name none)"
 DESIGN_NOT_LOADED = "{path}: not checked: {message}"
 SCHEMA_KIND = "no schema of this kind"
 ONE_DESIGN_ONLY = "this option takes one design at a time"

@@ -46,8 +46,8 @@ import typing
 from pinlib.core import messages as M
 from pinlib.core.errors import PinlibError
 
-__all__ = ["Record", "RecordError", "Issue", "Field", "Convert", "Rule", "WrittenAs", "field",
-           "after", "check"]
+__all__ = ["Record", "RecordError", "Issue", "Involving", "Field", "Convert", "Rule", "WrittenAs",
+           "field", "after", "check"]
 
 _MISSING = object()
 _FAIL = object()  # what a checking function returns after recording its issue
@@ -57,15 +57,19 @@ class Issue:
     """One problem of a table: ``loc`` (keys and indexes from the root), ``kind``
     (``missing``, ``unknown``, ``literal``, ``type``, ``rule``, ``value``), the problem
     text, the value given (None for a missing key), what was expected, and the pinlib
-    error a converter raised (its own expected value and hint), if any.  (A plain class:
-    a dataclass costs a millisecond of every start.)"""
+    error a converter raised (its own expected value and hint), if any.  ``related``: the
+    places of the fields a check of several fields weighed (:class:`Involving`), where a
+    caller that merged the table from several files may lay the blame instead.  (A plain
+    class: a dataclass costs a millisecond of every start.)"""
 
-    __slots__ = ("loc", "kind", "problem", "value", "expected", "error")
+    __slots__ = ("loc", "kind", "problem", "value", "expected", "error", "related")
 
     def __init__(self, loc: tuple, kind: str, problem: str, value: object = None,
-                 expected: str | None = None, error: PinlibError | None = None):
+                 expected: str | None = None, error: PinlibError | None = None,
+                 related: tuple = ()):
         self.loc, self.kind, self.problem = loc, kind, problem
         self.value, self.expected, self.error = value, expected, error
+        self.related = related
 
     def __repr__(self):
         return f"Issue({self.loc!r}, {self.kind!r}, {self.problem!r}, {self.value!r})"
@@ -78,6 +82,18 @@ class RecordError(ValueError):
         self.issues = issues
         super().__init__("; ".join(f"{'.'.join(map(str, i.loc)) or '(top)'}: {i.problem}"
                                    for i in issues[:5]))
+
+
+class Involving(ValueError):
+    """A check's refusal of a combination of fields: ``fields``, the keys of its record that
+    it weighed (``v_il`` and ``v_ih``).  The issue stays at the check's place; its
+    ``related`` names those fields, so that a loader which merged the record from a
+    class and the parts that extend it can name the field the latest file wrote (the one
+    that made the combination wrong), not the file that first wrote the table."""
+
+    def __init__(self, problem: str, fields: tuple[str, ...]):
+        super().__init__(problem)
+        self.fields = tuple(fields)
 
 
 class Convert:
@@ -323,7 +339,7 @@ class Record:
                 continue
             for fn in f.checks:
                 v = _guarded(lambda fn=fn, v=v: fn(cls, v, values), loc + (f.key,), raw,
-                             issues)
+                             issues, table=loc)
                 if v is _FAIL:
                     break
             if v is not _FAIL:
@@ -333,15 +349,19 @@ class Record:
         made = object.__new__(cls)
         object.__setattr__(made, "__dict__", values)
         for fn in spec.afters:
-            if _guarded(lambda fn=fn: fn(made), loc, None, issues) is _FAIL:
+            if _guarded(lambda fn=fn: fn(made), loc, None, issues, table=loc) is _FAIL:
                 return _FAIL
         return made
 
 
-def _guarded(call, loc, raw, issues):
-    """``call()``, with a PinlibError or ValueError it raises recorded as an issue."""
+def _guarded(call, loc, raw, issues, table=None):
+    """``call()``, with a PinlibError or ValueError it raises recorded as an issue (an
+    :class:`Involving` with the places of its fields in the record at ``table``)."""
     try:
         return call()
+    except Involving as err:
+        related = tuple((loc if table is None else table) + (k,) for k in err.fields)
+        issues.append(Issue(loc, "value", str(err), raw, related=related))
     except PinlibError as err:
         issues.append(Issue(loc, "value", err.problem, raw, err.expected, err))
     except RecordError as err:

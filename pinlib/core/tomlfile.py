@@ -326,12 +326,16 @@ def _line_within(index: dict[tuple, int], path: tuple) -> int | None:
 
 
 def _deep_line(text: str) -> int | None:
-    """The first line where brackets and braces open deeper than MAX_NESTING (brackets
-    inside strings are counted too: this only places a message)."""
+    """The first line where brackets and braces open deeper than MAX_NESTING, or whose
+    header or key has more dotted parts than that (brackets and dots inside strings are
+    counted too: this only places a message)."""
     depth = 0
     for number, line in enumerate(text.splitlines(), start=1):
         opened = line.count("[") + line.count("{")
         if depth + opened > MAX_NESTING:
+            return number
+        head = line.split("=", 1)[0]  # a header, or a key before its value
+        if head.count(".") >= MAX_NESTING:
             return number
         depth = max(0, depth + opened - line.count("]") - line.count("}"))
     return None

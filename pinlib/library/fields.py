@@ -172,9 +172,10 @@ def model_at(root: type[Record], loc) -> type[Record] | None:
     return model
 
 
-def unknown_field_help(root: type[Record], loc, format_name: str) -> tuple[str, str | None]:
+def unknown_field_help(root: type[Record], loc, format_name: str,
+                       closest: bool = True) -> tuple[str, str | None]:
     """(expected, hint) for an unknown key at ``loc``: the fields of that table in the
-    named format, and the closest of them to the key."""
+    named format, and (unless not ``closest``) the closest of them to the key."""
     model = model_at(root, loc)
     if model is None or not loc:
         return M.EXPECTED_FIELD_OF.format(format=format_name, fields="see its documentation"), None
@@ -184,7 +185,7 @@ def unknown_field_help(root: type[Record], loc, format_name: str) -> tuple[str, 
     if len(names) > _FIELDS_SHOWN:  # a message stays readable: the rest in the docs
         shown += M.MORE_FIELDS.format(n=len(names) - _FIELDS_SHOWN, format=format_name)
     return (M.EXPECTED_FIELD_OF.format(format=format_name, fields=shown),
-            nearby.closest_hint(key, names))
+            nearby.closest_hint(key, names) if closest else None)
 
 
 #: How many field names an unknown-key message lists (the closest is named apart).

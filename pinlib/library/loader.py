@@ -21,7 +21,7 @@ from pathlib import Path
 from pinlib.core import messages as M
 from pinlib.core import nearby
 from pinlib.core.errors import LibraryError, PinlibError
-from pinlib.core.records import Record, RecordError
+from pinlib.core.records import Issue, Record, RecordError
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_index, line_of, load
 from pinlib.core.valueclass import value_class
@@ -100,18 +100,34 @@ def read_part_file(path: Path, *, builtin: bool = False) -> PartFile:
     return pf
 
 
+#: The unknown keys of one file answered with the closest field as well: past them, each
+#: is still named with its table's fields (a file of 50,000 misspelt keys spent seconds
+#: of every command guessing).
+MAX_CLOSEST_HINTS = 100
+
+
 def record_errors(exc: RecordError, *, file=None, locate=None, cls=LibraryError,
                   origin_file=None, model: type[Record] = Part,
-                  format_name: str = "part") -> list[PinlibError]:
+                  format_name: str = "part", blame=None) -> list[PinlibError]:
     """Turn a :class:`~pinlib.core.records.RecordError` into pinlib errors naming file,
     line and field.
 
     ``model`` is the root model that was validated and ``format_name`` the name of its
     format: an unknown key is answered with the fields of its table and the closest one.
+    ``blame(issue)``, when given, returns the place to name and the value found there
+    (``(loc, value)``) for an issue of several fields (its ``related``), else None.
     """
     out: list[PinlibError] = []
+    guessed = 0
     for issue in exc.issues:
         loc = issue.loc
+        moved = blame(issue) if blame is not None and issue.related else None
+        if moved is not None and moved[0] != loc:
+            # the value shown is the one written there, where the issue showed one
+            loc, shown = moved[0], None
+            if issue.value is not None:
+                shown = moved[1].get("value") if isinstance(moved[1], dict) else moved[1]
+            issue = Issue(loc, issue.kind, issue.problem, shown, issue.expected, issue.error)
         dotted = dotted_path(loc)
         where = origin_file(loc) if origin_file else file
         line = locate(where, loc) if locate else None
@@ -126,7 +142,9 @@ def record_errors(exc: RecordError, *, file=None, locate=None, cls=LibraryError,
             # here: the field tables are built only to answer a misspelt key
             from pinlib.library.fields import unknown_field_help
 
-            expected, hint = unknown_field_help(model, loc, format_name)
+            expected, hint = unknown_field_help(model, loc, format_name,
+                                                closest=guessed < MAX_CLOSEST_HINTS)
+            guessed += 1
         value = issue.value if not isinstance(issue.value, dict) else None
         out.append(cls(issue.problem, file=where, line=line, field=dotted, value=value,
                        expected=expected, hint=hint))
@@ -190,6 +208,15 @@ def _is_value_table(d: dict) -> bool:
         keys & {"value", "basis", "source"})
 
 
+def _raw_at(raw, loc: tuple):
+    """What the merged table holds at ``loc``, or None."""
+    for key in loc:
+        if not isinstance(raw, dict) or key not in raw:
+            return None
+        raw = raw[key]
+    return raw
+
+
 def _origin_of(origin: dict, loc: tuple) -> str | None:
     loc = tuple(loc)
     while loc:
@@ -215,7 +242,23 @@ def validate_part(merged: dict, origin: dict, files: dict[str, PartFile]) -> Par
                     return pf.line(loc)
             return None
 
-        raise _Many(record_errors(exc, origin_file=origin_file, locate=locate)) from None
+        order = {pid: i for i, pid in enumerate(files)}  # the root first, this part last
+
+        def blame(issue):
+            # A check of several fields (v_il above v_ih): the field the latest file in
+            # the chain wrote.  Every file before it left a valid pair (or is blamed at
+            # its own line), so that write made the pair wrong; the table itself was
+            # often first written by a built-in class, the one file not to edit.  Of
+            # fields one file wrote, the check's own (supply.max), else the first.
+            written = [(order.get(_origin_of(origin, r), -1), r == issue.loc, -i, r)
+                       for i, r in enumerate(issue.related) if _raw_at(merged, r) is not None]
+            if not written:
+                return None
+            loc = max(written)[-1]
+            return loc, _raw_at(merged, loc)
+
+        raise _Many(record_errors(exc, origin_file=origin_file, locate=locate,
+                                  blame=blame)) from None
     stamps = {pid: (str(pf.path), _file_provenance(pf.raw)) for pid, pf in files.items()}
     return _with_origins(part, origin, own, stamps)
 
@@ -343,6 +386,10 @@ class Library:
 
     def closest(self, part_id: str, n: int = 3) -> list[str]:
         return nearby.closest(part_id, self.parts, n=n, cutoff=0.4)
+
+    def team_folders(self) -> list[Path]:
+        """The folders read besides the built-in library, in order."""
+        return [f for f in self.folders if f != BUILTIN_DIR]
 
     def get(self, part_id: str, *, file=None, line=None, field=None) -> Part:
         """The part with this id.

@@ -27,6 +27,7 @@ import tomlkit
 from tomlkit.items import InlineTable, Table
 
 from pinlib.core import messages as M
+from pinlib.core import nearby
 from pinlib.core.commandtext import continued_lines
 from pinlib.core.errors import InputError, LibraryError, PinlibError, WriteError
 from pinlib.core.tomlfile import atomic_write, file_lock, line_index, line_of, tomllib
@@ -58,6 +59,14 @@ def team_folder(into_folder, why: str) -> Path:
     library is refused (``why`` says what belongs elsewhere)."""
     folder = Path(into_folder)
     _refuse_builtin(folder, why, "name a team library folder with --into")
+    from pinlib.library.walk import _system_folder
+
+    real = folder.resolve()
+    if _system_folder(real):
+        # a file written there could never be read: no library folder may be one
+        raise LibraryError(M.LIBRARY_IS_SYSTEM_FOLDER.format(real=real), file=str(folder),
+                           field="--into",
+                           hint="name a folder of its own for the team's parts, e.g. ./parts")
     if folder.exists() and not folder.is_dir():
         raise WriteError(M.NOT_A_FOLDER, file=str(folder),
                          expected="the team library folder the part file goes in",
@@ -82,6 +91,12 @@ def _check_id(new_id: object) -> str:
                            expected="lowercase letters, digits and '-', starting with a letter "
                                     "or digit, at most 64 characters (e.g. 'eeprom-i2c-acme')")
     return new_id
+
+
+def one_line(text: str) -> str:
+    """A source as one line: a line break or tab pasted with it (a caption copied out
+    of a PDF) and any run of white space become one space, the ends stripped."""
+    return " ".join(text.split())
 
 
 def _toml_string(text: str) -> str:
@@ -179,7 +194,7 @@ def new_part(library: loader.Library, new_id: str, from_class: str,
 def _provenance_lines(basis: str, source: str, today: _dt.date) -> list[str]:
     """The new file's ``provenance`` line: without a source no empty one is written, and a
     basis that names a document says, in a comment, what to fill in."""
-    source = source.strip() if isinstance(source, str) else ""
+    source = one_line(source) if isinstance(source, str) else ""
     bits = [f"basis = {_toml_string(basis)}"]
     if source:
         bits.append(f"source = {_toml_string(source)}")
@@ -470,7 +485,7 @@ def record_value(library: loader.Library, part_id: str, field: str, value_text: 
                          expected="one of " + ", ".join(RECORD_BASES + ("generic",)))
     if typ is not None and not (isinstance(typ, str) and typ.strip()):
         raise InputError(M.EMPTY_TYPICAL, field=f"{dotted}.typ", value=typ)
-    item = _value_item(value_text.strip(), basis, source.strip(),
+    item = _value_item(value_text.strip(), basis, one_line(source),
                        None if typ is None else typ.strip())
 
     with file_lock(path):
@@ -528,10 +543,16 @@ def _check_pin_exists(library, part_id, pf, data, keys) -> None:
     if at == 0 and not node and isinstance(merged.get("sides"), dict) and merged["sides"]:
         _refuse_top_level_pin(merged["sides"], keys)
     if not isinstance(node, dict) or pin not in node:
-        names = ", ".join(sorted(node)) if isinstance(node, dict) and node else "none"
+        held = sorted(node) if isinstance(node, dict) else []
+        # "SDA" for sda (the datasheet's spelling): the likeness of names ignores case
+        by_lower = {str(n).lower(): str(n) for n in held}
+        near = nearby.closest(pin.lower(), by_lower)
+        hint = "a new pin needs its function: add its table to the file by hand"
+        if near:
+            hint = "closest: " + ", ".join(by_lower[n] for n in near) + "; " + hint
         raise LibraryError(M.NO_SUCH_PIN, field=".".join(keys[: at + 2]),
-                           value=pin, expected=f"one of its pins ({names})",
-                           hint="a new pin needs its function: add its table to the file by hand")
+                           value=pin, expected=f"one of its pins ({', '.join(held) or 'none'})",
+                           hint=hint)
 
 
 def _refuse_top_level_pin(sides: dict, keys: tuple[str, ...]) -> None:

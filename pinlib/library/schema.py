@@ -40,7 +40,7 @@ from typing import Annotated, Literal
 from pinlib.core import messages as M
 from pinlib.core.protocols import PIN_FUNCTIONS
 from pinlib.core.quantity import format_si
-from pinlib.core.records import Convert, Record, Rule, after, check, field
+from pinlib.core.records import Convert, Involving, Record, Rule, after, check, field
 from pinlib.library.values import Sourced, sourced_parser, threshold_parser
 
 __all__ = [
@@ -157,13 +157,15 @@ class Pin(Record):
         if lo is not None and hi is not None:
             ends = (0.5, 50.0)  # the schema's voltage range, where a threshold can sit
             if all(float(lo.at(v)) > float(hi.at(v)) for v in ends):
-                raise ValueError(M.THRESHOLDS_INVERTED.format(v_il=lo.text, v_ih=hi.text))
+                raise Involving(M.THRESHOLDS_INVERTED.format(v_il=lo.text, v_ih=hi.text),
+                                ("v_il", "v_ih"))
         return self
 
     @after
     def _fast_on_push_pull(self):
         if self.fast is not None and self.drive != "push-pull":
-            raise ValueError(M.FAST_CORNER_NEEDS_PUSH_PULL.format(drive=self.drive))
+            raise Involving(M.FAST_CORNER_NEEDS_PUSH_PULL.format(drive=self.drive),
+                            ("drive", "fast"))
         return self
 
 
@@ -214,7 +216,8 @@ class Supply(Record):
     def _ordered(cls, v, earlier):
         lo = earlier.get("min")
         if lo is not None and v.value < lo.value:
-            raise ValueError(M.SUPPLY_MAX_BELOW_MIN.format(max=v.text, min=lo.text))
+            raise Involving(M.SUPPLY_MAX_BELOW_MIN.format(max=v.text, min=lo.text),
+                            ("min", "max"))
         return v
 
 
@@ -247,7 +250,7 @@ class LinePerLength(Record):
             return self  # capacitance alone serves the bus engines (no delay, no Z0)
         if len(given) < 2 or (z is not None and not z.value > 0) or \
                 (c is not None and not c.value > 0):
-            raise ValueError(M.CABLE_NEEDS_TWO_OF_THREE)
+            raise Involving(M.CABLE_NEEDS_TWO_OF_THREE, ("capacitance", "delay", "impedance"))
         if c is None:
             value, field, unit = d.value / z.value, "capacitance", "F/m"
             how = f"delay / impedance = {d.text} / {z.text}"

@@ -78,6 +78,13 @@ def run(args) -> int:
     design = load_design(args.design, library_folders=args.library)
     ranking = rank_candidates(design, args.ref, categories=args.category or None,
                               progress=True if args.progress else None)
+    problems = design.library.problems  # the ranking read every part: a part left out
+    if problems:
+        from pinlib.present.terminal import fitted
+
+        print(fitted("pinlib: warning: " + M.LIBRARY_HAS_PROBLEMS.format(n=len(problems))
+                     + "; " + M.FIRST_PROBLEM.format(message=problems[0].message),
+                     sys.stderr), file=sys.stderr)
     if args.json:
         from pinlib.present.terminal import write_json
 

@@ -109,7 +109,16 @@ def run(args) -> int:
     lib = load_library(args.library, lazy=True)
     placed = []
     for ref, pid in placements:
-        part = lib.get(pid, field="--part")
+        try:
+            part = lib.get(pid, field="--part")
+        except InputError as err:
+            if pid in lib.files:
+                raise  # a part that does not load: its own file's error
+            from pinlib.library.folders import team_folders_hint
+
+            # unknown: where team parts were looked for (PINLIB_LIBRARY not set?)
+            raise InputError(err.problem, field="--part", value=pid, hint="; ".join(
+                h for h in (err.hint, team_folders_hint(args.library)) if h)) from None
         if part.abstract or part.category == "cable":
             text = M.ABSTRACT_NOT_PLACED if part.abstract else M.CABLE_NOT_PLACED
             raise InputError(text.format(part=pid), field="--part", value=f"{ref}={pid}")

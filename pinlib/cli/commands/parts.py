@@ -78,8 +78,10 @@ examples:
 FIELD is PIN.FIELD (sda.c_in), timing.FIELD, supply.min|max, sides.a.PIN.FIELD...
 A bridging part (translator, repeater) has its pins per side: sides.a.sda.c_in.
 
-A negative VALUE goes after '--':
-  pinlib parts record X -- sda.v_il "-0.3 V" --source S
+A negative VALUE is written as it is ("-0.3 V", "-300mV"); one that starts with a
+minus and no digit goes after '--', every option before it:
+  pinlib parts record X sda.v_il "-0.3 V" --source S
+  pinlib parts record --source S X -- sda.v_il "-VDD + 3.6 V"
 
 The file keeps its comments and layout; a value that does not validate is refused and
 the file is left as it was. Built-in parts are never written: make a team part first.
@@ -235,10 +237,11 @@ def _kind(lib, pid) -> str:
 
 
 def _table(rows: list[list[str]], header: list[str], keep: int = 2,
-           left_out: dict[str, str] | None = None) -> str:
+           left_out: dict[str, str | list[str]] | None = None) -> str:
     """The table fitted to the terminal's width (COLUMNS; piped output whole): columns that do not
     fit are left out and named; a long cell wraps inside its column.  ``left_out``: a line
-    to print for a column when it is left out (what it would have told)."""
+    (or lines, each wrapped with its rest indented) to print for a column when it is left
+    out (what it would have told)."""
     from pinlib.core.texttable import fit_table
     from pinlib.present.terminal import table_width, wrap
 
@@ -246,7 +249,11 @@ def _table(rows: list[list[str]], header: list[str], keep: int = 2,
     lines, dropped = fit_table(header, rows, cols, keep=keep, rule=True)
     for column, note in (left_out or {}).items():
         if column in dropped and note:
-            lines += wrap(note, cols, subsequent="")
+            if isinstance(note, str):
+                lines += wrap(note, cols, subsequent="")
+            else:
+                for line in note:
+                    lines += wrap(line, cols)
     if dropped:
         lines += wrap(M.COLUMNS_LEFT_OUT.format(columns=", ".join(dropped)), cols, subsequent="")
     return "\n".join(lines)
@@ -405,19 +412,27 @@ def _typ_text(entry) -> str:
     return typ if isinstance(typ, str) else format_si(typ, entry["unit"])
 
 
+def _refuse_unknown(lib, pid: str, field: str, args) -> None:
+    """An id no file of the library holds is an error naming the argument that gave it,
+    the closest ids and where team parts were looked for (a shell without
+    PINLIB_LIBRARY reads like a misspelt id otherwise)."""
+    if pid in lib.files:
+        return
+    try:
+        lib.get(pid)
+    except InputError as err:
+        from pinlib.library.folders import team_folders_hint
+
+        raise InputError(err.problem, field=field, value=pid, hint="; ".join(
+            h for h in (err.hint, team_folders_hint(args.library)) if h)) from None
+
+
 def _run_show(args) -> int:
     from pinlib.core.quantity import format_si
     from pinlib.present.terminal import width, wrap
 
     lib = _load(args)
-    if args.id not in lib.files:
-        try:
-            lib.get(args.id)
-        except InputError as err:  # unknown: say where team parts were looked for
-            from pinlib.library.folders import team_folders_hint
-
-            raise InputError(err.problem, field="ID", value=args.id, hint="; ".join(
-                h for h in (err.hint, team_folders_hint(args.library)) if h)) from None
+    _refuse_unknown(lib, args.id, "ID", args)
     data = _show_data(lib, args.id)
     if args.json:
         print(json.dumps(data, indent=2, ensure_ascii=False))
@@ -447,6 +462,7 @@ def _run_show(args) -> int:
                        else str(a["value"])] for a in data["attributes"]], ["field", "setting"]))
     print()
     rows = []
+    inherited: dict[str, list[str]] = {}  # "ID (file)" -> the fields taken from it
     for v in data["values"]:
         shown = v["text"]
         unit = v["unit"]
@@ -463,10 +479,17 @@ def _run_show(args) -> int:
         if v["derived"]:
             shown += "  [derived]"
         origin = "" if not v["inherited"] else f"{v['origin']} ({_rel(v['origin_file'])})"
+        if origin:
+            inherited.setdefault(origin, []).append(v["field"])
         rows.append([v["field"], shown, _typ_text(v), basis, v["source"] or "", origin])
     if rows:
+        # too narrow for the column: which values the part takes from which class,
+        # below the table, the nearest class first (what sets a team part apart)
+        depth = {c["id"]: i for i, c in enumerate(data.get("chain", []))}
+        note = [f"inherited from {o}: {', '.join(f)}" for o, f in
+                sorted(inherited.items(), key=lambda item: depth.get(item[0].split()[0], 0))]
         print(_table(rows, ["field", "value", "typ", "basis", "source", "inherited from"],
-                     keep=5))
+                     keep=5, left_out={"inherited from": note}))
     else:
         print("(no values)")
     print()
@@ -494,6 +517,7 @@ def _run_new(args) -> int:
 
     folder = Path(args.into) if args.into else _default_folder(args)
     lib = _load(args)
+    _refuse_unknown(lib, args.from_class, "--from", args)
     path = new_part(lib, args.id, args.from_class, folder, title=args.title,
                     source=args.source)
     print(fitted(f"created {_rel(path)} (extends {args.from_class})"))
@@ -515,9 +539,10 @@ def _run_new(args) -> int:
 
 def _run_record(args) -> int:
     from pinlib.library.fields import resolve_path
-    from pinlib.library.record import record_value
+    from pinlib.library.record import one_line, record_value
 
     lib = _load(args)
+    _refuse_unknown(lib, args.id, "ID", args)
     keys, _ = resolve_path(args.field)
     was = _value_before(lib, args.id, ".".join(keys), typ_given=args.typ is not None)
     path = record_value(lib, args.id, args.field, args.value, args.source,
@@ -525,7 +550,7 @@ def _run_record(args) -> int:
     # as written to the file: stripped, and within the width
     typ = f", typ {args.typ.strip()}" if args.typ else ""
     print(fitted(f"recorded {'.'.join(keys)} = {args.value.strip()}{typ} ({args.basis}: "
-                 f"{args.source.strip()}) in {_rel(path)}"))
+                 f"{one_line(args.source)}) in {_rel(path)}"))
     if was is not None:
         # what the record replaces, so that a measured value or a typical one written
         # over is said, not lost in silence

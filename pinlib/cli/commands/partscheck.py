@@ -62,6 +62,12 @@ def run_check(args, load) -> int:
 
         n_files = len(part_paths(folder)[0])  # the files the bounded walk read
         scope = _rel(folder)
+    # A problem of a class is a problem of every part that extends it, each failing
+    # with the same error at the class's line: listed once.
+    once: dict = {}
+    for p in problems:
+        once.setdefault((type(p), p.message), p)
+    problems = list(once.values())
     if args.json:
         print(json.dumps({"checked": scope, "files": n_files,
                           "problems": [p.to_dict() for p in problems]},

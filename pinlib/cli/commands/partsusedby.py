@@ -18,14 +18,22 @@ def _toml_files_here() -> list:
     from pinlib.core.errors import LibraryError
     from pinlib.library.walk import part_paths
 
+    here = Path.cwd()
     try:
-        paths, _problems = part_paths(Path.cwd())
+        paths, _problems = part_paths(here)
     except LibraryError as exc:
         raise InputError(M.USED_BY_FOLDER_REFUSED.format(reason=exc.problem),
-                         field="DESIGN", value=str(Path.cwd()),
+                         field="DESIGN", value=str(here),
                          expected="design files or a pattern (e.g. 'boards/**/*.toml')"
                          ) from None
-    return paths
+    # named from the current folder, as the designs a user gives are (not /tmp/.../a.toml)
+    out = []
+    for p in paths:
+        try:
+            out.append(Path(p).relative_to(here))
+        except ValueError:  # reached by a link (followed only inside the folder)
+            out.append(Path(p))
+    return out
 
 
 def _not_found(lib, args, designs: int | None) -> InputError:

@@ -48,7 +48,12 @@ class _Resolver:
         except PinlibError as e:
             if e.problem != M.UNKNOWN_PART:
                 raise
-            raise self.err(M.UNKNOWN_PART, loc, value=part_id, hint=e.hint) from None
+            # a team part looked for where no team folder was named (a shell without
+            # PINLIB_LIBRARY) reads as a misspelt id unless the folders read are named
+            folders = ", ".join(str(f) for f in self.library.team_folders())
+            hint = "; ".join(h for h in (e.hint, M.DESIGN_TEAM_FOLDERS.format(
+                folders=folders or M.NO_TEAM_FOLDERS)) if h)
+            raise self.err(M.UNKNOWN_PART, loc, value=part_id, hint=hint) from None
 
     def device(self, d: RawDevice, loc) -> Device:
         err = self.err
