@@ -740,3 +740,66 @@ def test_the_termination_check_gives_its_target_as_no_limit(lib):
         assert chk.status == "pass" and chk.margin is None
         assert chk.details["rs_ideal"] == pytest.approx(30.0, rel=1e-12)
     assert "Z0 - r_out = 30 Ω, nearest E24" in long_.message
+
+
+# --------------------------------------------------------------------------- GPIO review
+# (invented boards of built-in classes, written as a new user would)
+
+
+def _builtin_design(tmp_path, body, name="b.toml"):
+    path = tmp_path / name
+    path.write_text('format = "pinlib.design/1"\ntitle = "GPIO review (invented)"\n\n'
+                    + body, encoding="utf-8")
+    return load_design(path)
+
+
+@pytest.mark.parametrize("extra, who", [
+    ("", None),                                                   # the controller alone
+    ('  { ref = "J1", part = "board-to-board-connector", pin = "gpio" },\n', "J1.gpio"),
+])
+def test_a_gpio_line_nothing_checks_at_says_so(tmp_path, extra, who):
+    # a line with no input pin, or only inputs without levels or abs_max (a connector
+    # contact), passes with no check at a receiver: its notes must say that nothing
+    # there was checked, and where to put the part that receives it
+    d = _builtin_design(tmp_path, f"""[[bus]]
+id = "rst"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller", pin = "cs" }},
+{extra}]
+lines.reset = {{ length = "5 cm", capacitance = "1 pF/cm" }}
+""")
+    (ln,) = evaluate_bus(d.bus("rst"), d).lines
+    assert not [c for c in ln.checks if c.id in ("level-high", "overshoot")]
+    (note,) = [n for n in ln.notes if "no level" in n]
+    if who is None:
+        assert "no device on the line receives it" in note
+    else:
+        assert who in note and "abs_max" in note
+
+
+def test_a_gpio_pin_the_part_lacks_names_the_device_line_and_field(tmp_path):
+    from pinlib.cli import main
+
+    path = tmp_path / "b.toml"
+    path.write_text('''format = "pinlib.design/1"
+title = "GPIO review (invented)"
+
+[[bus]]
+id = "rst"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller", pin = "cs" },
+  { ref = "U2", part = "display-controller-spi", pin = "rst" },
+]
+lines.reset = { length = "5 cm", capacitance = "1 pF/cm" }
+''', encoding="utf-8")
+    with pytest.raises(DesignError) as got:
+        load_design(path)
+    err = got.value
+    assert err.line == 10 and err.field == "bus[0].devices[1].pin"
+    text = str(err)
+    assert "'rst'" in text and "dc" in text and "display-controller-spi" in text
+    assert main(["check", str(path)]) == 2

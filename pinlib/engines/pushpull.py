@@ -198,8 +198,29 @@ def evaluate_gpio(bus: Bus, design: Design, *, analysis: dict | None = None) -> 
                              "(common practice)",
                              f"{len(pp)} push-pull drivers on {sig}: "
                              + ", ".join(e.label for e in pp)))
+        _note_unchecked(result, la.receivers)
         res.lines.append(result)
     return res
+
+
+def _note_unchecked(result, receivers) -> None:
+    """A note on a GPIO line where no receiver is checked: none on the line (only its
+    controller, or drivers alone), or inputs that give neither levels nor ``abs_max`` (a
+    connector contact, whose receiver sits beyond it)."""
+    if not receivers:
+        result.notes.append(
+            "no device on the line receives it (no pin of drive \"input\"): its "
+            "edges are worked out, but no level or ringing check is made; list the "
+            "part that receives it, with its pin")
+        return
+    bare = [e.label for e in receivers
+            if all(e.level(n) is None for n in ("v_il", "v_ih", "abs_max"))]
+    if len(bare) == len(receivers):
+        result.notes.append(
+            f"{', '.join(bare)} {'gives' if len(bare) == 1 else 'give'} no input "
+            "levels (v_il, v_ih) or abs_max: no level, overshoot or ringing check is "
+            f"made at {'it' if len(bare) == 1 else 'them'}; a connector passes the line "
+            "on: list the part beyond it, with its pin, on the line")
 
 
 # --------------------------------------------------------------------------- entry

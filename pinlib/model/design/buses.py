@@ -135,6 +135,8 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
     if not any(d.is_controller for d in devices):
         raise err(M.BUS_NEEDS_CONTROLLER, bloc + ("devices",),
                   hint="mark one device role = \"controller\"")
+    if rb.protocol == "gpio":
+        _check_gpio_pins(devices, err)
     lines = {}
     for sig, rt in rb.lines.items():
         loc = bloc + ("lines", sig)
@@ -168,6 +170,19 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
     return Bus(rb.id, rb.protocol, None, rb.clock, rb.supply, rb.supply_tolerance or 0.0, (),
                devices, lines, rb.spi_mode, rb.title, rb.capacitance_tolerance or 0.0,
                rb.length_tolerance or 0.0, bloc)
+
+
+def _check_gpio_pins(devices, err) -> None:
+    """Each ``pin`` a device of a GPIO bus names is a pin of its part (of its side, for a
+    bridge): refused at the device's ``pin``, with the pins the part has."""
+    for d in devices:
+        if d.pin is None:
+            continue
+        side = (d.side or "a") if d.is_bridge else None
+        pins = d.part.sides[side].pins if side else d.part.pins
+        if d.pin not in pins:
+            raise err(M.NO_SUCH_PIN, d.loc + ("pin",), value=d.pin,
+                      hint=f"{d.part_id} has pins: " + (", ".join(pins) or "none"))
 
 
 def _one_part_per_reference(buses, err, fname, index) -> None:
