@@ -803,3 +803,73 @@ lines.reset = { length = "5 cm", capacitance = "1 pF/cm" }
     text = str(err)
     assert "'rst'" in text and "dc" in text and "display-controller-spi" in text
     assert main(["check", str(path)]) == 2
+
+
+_OD_RESET = """[[bus]]
+id = "rst"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  {{ ref = "U10", part = "io-expander-i2c", role = "controller", pin = "int" }},
+  {{ ref = "U2", part = "display-controller-spi", pin = "dc" }},
+]
+lines.reset = {{ length = "5 cm", capacitance = "1 pF/cm"{extra} }}
+"""
+
+
+def test_an_open_drain_gpio_line_takes_a_pull_up_resistor_of_its_own(tmp_path):
+    # an active-low reset from an open-drain output (invented, built-in classes): with
+    # no part carrying a pull-up the line could not be described at all; its own
+    # resistor goes to the bus supply and the line rises through it
+    d = _builtin_design(tmp_path, _OD_RESET.format(extra=', pullup = "10 kΩ"'))
+    (ln,) = evaluate_bus(d.bus("rst"), d).lines
+    assert ln.check("pull-up") is None
+    assert ln.figures["edge_rise_time"].value > 100e-9  # through 10 kΩ, not a driver
+    # derived: the high level drops by the two pins' leakage (1 µA each) through 10 kΩ;
+    # the low level is the sink (0.4 V / 3 mA) against 10 kΩ from that level
+    v_high = VDD - 2e-6 * 10e3
+    assert ln.check("level-high").value == pytest.approx(v_high, rel=1e-9)
+    r_sink = 0.4 / 3e-3
+    assert ln.check("level-low").value == pytest.approx(v_high * r_sink / (r_sink + 10e3),
+                                                        rel=1e-6)
+    # without it, the failing pull-up check says how to give one
+    d = _builtin_design(tmp_path, _OD_RESET.format(extra=""), name="none.toml")
+    (ln,) = evaluate_bus(d.bus("rst"), d).lines
+    assert "lines.reset.pullup" in ln.check("pull-up").fix
+
+
+def test_a_line_pull_up_pulls_to_the_varied_rail(tmp_path):
+    # the resistor goes to the bus supply as each board varies it (corners): at the
+    # rail's +5 % corner the high level is 3.465 V less the leakage drop
+    d = _builtin_design(tmp_path, _OD_RESET.format(extra=', pullup = "10 kΩ"').replace(
+        'supply = "3.3 V"\n', 'supply = "3.3 V"\nsupply_tolerance = "5 %"\n', 1))
+    (ln,) = evaluate_bus(d.bus("rst"), d).lines
+    # derived: the level-high check's worst corner is the low rail, 3.135 V less 20 mV
+    assert ln.check("level-high").value == pytest.approx(3.3 * 0.95 - 2e-6 * 10e3, rel=1e-9)
+
+
+@pytest.mark.parametrize("body, field", [
+    ("""[[bus]]
+id = "s"
+protocol = "spi"
+clock = "1 MHz"
+supply = "3.3 V"
+devices = [{ ref = "U1", part = "mcu-3v3", role = "controller" },
+           { ref = "U2", part = "nor-flash-spi" }]
+lines.sclk = { length = "5 cm", capacitance = "1 pF/cm", pullup = "10 kΩ" }
+""", "bus[0].lines.sclk.pullup"),
+    ("""[[bus]]
+id = "i"
+protocol = "i2c"
+supply = "3.3 V"
+trace = { length = "5 cm", capacitance = "1 pF/cm", pullup = "10 kΩ" }
+devices = [{ ref = "U1", part = "mcu-3v3", role = "controller" },
+           { ref = "U2", part = "eeprom-i2c" }]
+""", "bus[0].trace.pullup"),
+])
+def test_a_line_pull_up_is_refused_off_a_gpio_line(tmp_path, body, field):
+    with pytest.raises(DesignError) as got:
+        _builtin_design(tmp_path, body)
+    assert got.value.field == field
+    assert got.value.line == (11 if "lines" in field else 8)
+    assert "only a GPIO line takes a pullup" in str(got.value)

@@ -16,9 +16,9 @@ Which pin of a device sits on a GPIO line: the device's ``pin`` (when the bus ha
 line, or the pin is named like the line), else the pin named like the line, else on a
 one-line bus the part's only ``gpio`` pin.  Pins that drive (push-pull or open-drain)
 are drivers, evaluated in turn; inputs are receivers.  An open-drain net rises through
-the pull-ups that parts on it carry (``pullup``, or ``pullup_internal`` of a device
-with ``internal_pullups = true``); the design format has no pull-up of its own on a
-GPIO line.
+the line's own ``pullup`` (a resistor to the bus supply) and the pull-ups that parts on
+it carry (``pullup``, or ``pullup_internal`` of a device with ``internal_pullups =
+true``), in parallel.
 """
 
 from __future__ import annotations
@@ -136,6 +136,8 @@ def gpio_line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
                               field=f"bus.{bus.id}.lines.{sig}",
                               hint="give each device's pin (pin = \"NAME\") or use parts with "
                                    "a push-pull or open-drain pin of that name")
+        if line.pullup is not None:  # to the bus rail, as varied on this board
+            line = replace(line, pullup_rail=float(bus.supply))
         out.append(LineInputs(sig, line, tuple(drivers), tuple(eps), tuple(receivers),
                               clock=bus.clock, clock_line=False,
                               warn_margin=design.warn_margin, bus_id=bus.id))

@@ -142,9 +142,14 @@ def _thresholds(rx: Endpoint) -> tuple[float, float]:
     return v_il, v_ih
 
 
-def _pullups(loads: Sequence[Endpoint], driver: Endpoint) -> tuple[float | None, float]:
-    """Parallel resistance of every pull-up on the net and the rail it pulls to."""
+def _pullups(loads: Sequence[Endpoint], driver: Endpoint,
+             line_pullup: tuple[float, float] | None = None) -> tuple[float | None, float]:
+    """Parallel resistance of every pull-up on the net and the rail it pulls to (the
+    lowest of theirs): the pins' and ``line_pullup``, the line's own resistor and its
+    rail, when it has one."""
     g, rail = 0.0, None
+    if line_pullup is not None:
+        g, rail = 1.0 / line_pullup[0], line_pullup[1]
     for p in list(loads) + [driver]:
         r = None
         if p.pin.pullup is not None:

@@ -393,14 +393,19 @@ def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
     stuck = []
     for d in a.drivers:
         if d.pin.drive == "open-drain":
-            rp, rail = _pullups(_others(a.loads, d), d)
+            own = a.line.pullup
+            rp, rail = _pullups(_others(a.loads, d), d,
+                                None if own is None else
+                                (float(own), float(a.line.pullup_rail or d.vdd)))
             if rp is None:
                 res.add(Check("pull-up", "fail", None, None, "Ω", None,
                               "an open-drain line needs a pull-up (common practice)",
-                              f"{d.label} is open-drain and no pin on {a.signal} carries a "
-                              "pull-up: the line never rises", subject=d.ref,
-                              fix="use a part with an on-board pull-up, or enable internal "
-                                  "pull-ups"))
+                              f"{d.label} is open-drain and {a.signal} has no pull-up (no "
+                              "resistor of its own, no pin carrying one): the line never "
+                              "rises", subject=d.ref,
+                              fix=f"give the line a resistor to the bus supply "
+                                  f"(lines.{a.signal}.pullup = \"4.7 kΩ\"), use a part "
+                                  "with an on-board pull-up, or enable internal pull-ups"))
                 stuck.append(d)
                 continue
             pullup[d.ref] = (rp, rail)

@@ -76,6 +76,12 @@ def _segment(rb: RawBus, rs, sloc, si: int, count: int, device, sections, cables
     devices = tuple(device(d, sloc + ("devices", i)) for i, d in enumerate(rs.devices))
     seg_id = rs.id or (rb.id if count == 1 else f"{rb.id}-{si + 1}")
     cab = cables(rs.cables or (rb.cables if rs is not rb else ()), sloc + ("cables",))
+    trace = pick("trace")
+    if trace is not None and trace.pullup is not None:  # a GPIO line's key; here the bus's
+        # (a bus with segments gives no trace of its own: the segment's is at sloc)
+        raise err(M.LINE_PULLUP_NOT_GPIO, sloc + ("trace", "pullup"),
+                  hint="an I2C or SMBus bus (or segment) takes its pull-up as pullup = "
+                       "\"2.2 kΩ\" or \"auto\" beside its trace")
     series = pick("pullup_series", "E24")
     from pinlib.core.eseries import SERIES_NAMES
     if series.upper() not in SERIES_NAMES:
@@ -84,7 +90,7 @@ def _segment(rb: RawBus, rs, sloc, si: int, count: int, device, sections, cables
     return Segment(
         seg_id, supply, pick("supply_tolerance", 0.0), pick("pullup", "auto"),
         pick("pullup_tolerance", 0.01), series.upper(),
-        sections(pick("trace"), sloc + ("trace",)), pick("extra_capacitance", 0.0),
+        sections(trace, sloc + ("trace",)), pick("extra_capacitance", 0.0),
         pick("capacitance_tolerance", 0.0), pick("length_tolerance", 0.0), cab, devices,
         sloc)
 
@@ -151,8 +157,11 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
             alike = look_alikes(points, devices, rb.protocol, sig, len(rb.lines), homes)
         else:
             secs, points = sections(rt, loc), ()
+        if rt.pullup is not None and rb.protocol != "gpio":
+            raise err(M.LINE_PULLUP_NOT_GPIO, loc + ("pullup",),
+                      hint="an SPI line is driven push-pull both ways")
         lines[sig] = Line(sig, secs, rt.series_resistor, rt.extra_capacitance, loc, points,
-                          alike)
+                          alike, pullup=rt.pullup)
     if rb.protocol == "spi":
         if rb.clock is None:
             raise err(M.SPI_NEEDS_CLOCK, bloc + ("clock",),
