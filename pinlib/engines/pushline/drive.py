@@ -310,9 +310,12 @@ def edge_plan(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver,
         rp = float(r_pullup)
         v_lo, v_hi, r_th = _open_drain_levels(driver, loads, model, rs, rp, v_pullup)
         distributed = needs_distributed(stretches, r_th, c_far, long)
-        # The pull-up (>> Z0) charges the line as one capacitance.
-        return EdgePlan((rp, 0.0, c_far, v_lo, v_hi), (r_th, model.t_ramp_fall, c_far, v_hi,
-                                                       v_lo), distributed, False, c_far,
+        # The pull-up (>> Z0) charges the line as one capacitance, the released sink's
+        # own pin with the rest (its c_in is there whether it sinks or not); the sink
+        # discharges its own pin directly, so the fall loads it with the others alone.
+        c_rise = c_far + driver.c_in
+        return EdgePlan((rp, 0.0, c_rise, v_lo, v_hi), (r_th, model.t_ramp_fall, c_far, v_hi,
+                                                        v_lo), distributed, False, c_far,
                         v_lo, v_hi)
     vdd = driver.vdd
     distributed = needs_distributed(stretches, min(model.r_rise, model.r_fall) + rs, c_far,
