@@ -1607,6 +1607,12 @@ def _(env):
     return _fails(lambda e: e.design(SPI_BUS + 'pullup = "2.2 kΩ"\n'), env)
 
 
+@case("LINE_PULLUP_NOT_GPIO")
+def _(env):
+    return _fails(lambda e: e.design(SPI_BUS.replace(
+        'geometry = "g" }', 'geometry = "g", pullup = "10 kΩ" }')), env)
+
+
 @case("BUS_NEEDS_SUPPLY")
 def _(env):
     return _fails(lambda e: e.design(SPI_BUS.replace('supply = "3.3 V"\n', "")), env)
