@@ -1613,6 +1613,19 @@ def _(env):
         'geometry = "g" }', 'geometry = "g", pullup = "10 kΩ" }')), env)
 
 
+@case("GPIO_PIN_NAMES_NO_LINE")
+def _(env):
+    return _fails(lambda e: e.design("""
+[[bus]]
+id = "ctl"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [{ ref = "U1", part = "mcu-3v3", role = "controller", pin = "cs" }]
+lines.reset = { length = "5 cm", capacitance = "1 pF/cm" }
+lines.irq = { length = "5 cm", capacitance = "1 pF/cm" }
+"""), env)
+
+
 @case("BUS_NEEDS_SUPPLY")
 def _(env):
     return _fails(lambda e: e.design(SPI_BUS.replace('supply = "3.3 V"\n', "")), env)

@@ -881,3 +881,24 @@ def test_a_line_pull_up_is_refused_off_a_gpio_line(tmp_path, body, field):
     assert got.value.field == field
     assert got.value.line == (11 if "lines" in field else 8)
     assert "only a GPIO line takes a pullup" in str(got.value)
+
+
+def test_a_pin_that_names_no_line_of_a_bus_of_several_is_refused_at_the_device(tmp_path):
+    # on a bus of several lines a device's pin must name its line (docs/formats/
+    # design.md); pin = "cs" selected nothing and the error blamed the line instead:
+    # "no device drives this line; give each device's pin", which the user had done
+    with pytest.raises(DesignError) as got:
+        _builtin_design(tmp_path, """[[bus]]
+id = "ctl"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller", pin = "cs" },
+  { ref = "U2", part = "display-controller-spi", pin = "dc" },
+]
+lines.reset = { length = "5 cm", capacitance = "1 pF/cm" }
+lines.irq = { length = "5 cm", capacitance = "1 pF/cm" }
+""")
+    err = got.value
+    assert err.field == "bus[0].devices[0].pin" and err.line == 9
+    assert "'cs'" in str(err) and "reset, irq" in str(err) and "bus of its own" in str(err)

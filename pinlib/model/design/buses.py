@@ -142,7 +142,7 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
         raise err(M.BUS_NEEDS_CONTROLLER, bloc + ("devices",),
                   hint="mark one device role = \"controller\"")
     if rb.protocol == "gpio":
-        _check_gpio_pins(devices, err)
+        _check_gpio_pins(devices, tuple(rb.lines), err)
     lines = {}
     for sig, rt in rb.lines.items():
         loc = bloc + ("lines", sig)
@@ -181,9 +181,11 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
                rb.length_tolerance or 0.0, bloc)
 
 
-def _check_gpio_pins(devices, err) -> None:
+def _check_gpio_pins(devices, lines: tuple, err) -> None:
     """Each ``pin`` a device of a GPIO bus names is a pin of its part (of its side, for a
-    bridge): refused at the device's ``pin``, with the pins the part has."""
+    bridge), and on a bus of several lines the name of one of them (the rule of
+    :func:`pinlib.engines.pushpull.gpio_pin`; another name would select nothing):
+    refused at the device's ``pin``."""
     for d in devices:
         if d.pin is None:
             continue
@@ -192,6 +194,11 @@ def _check_gpio_pins(devices, err) -> None:
         if d.pin not in pins:
             raise err(M.NO_SUCH_PIN, d.loc + ("pin",), value=d.pin,
                       hint=f"{d.part_id} has pins: " + (", ".join(pins) or "none"))
+        if len(lines) > 1 and d.pin not in lines:
+            raise err(M.GPIO_PIN_NAMES_NO_LINE, d.loc + ("pin",), value=d.pin,
+                      expected="one of the bus's lines: " + ", ".join(lines),
+                      hint="to put a pin of another name on a line, give that line a bus "
+                           "of its own")
 
 
 def _one_part_per_reference(buses, err, fname, index) -> None:
