@@ -902,3 +902,23 @@ lines.irq = { length = "5 cm", capacitance = "1 pF/cm" }
     err = got.value
     assert err.field == "bus[0].devices[0].pin" and err.line == 9
     assert "'cs'" in str(err) and "reset, irq" in str(err) and "bus of its own" in str(err)
+
+
+def test_contention_is_a_rule_of_thumb_that_names_the_drivers_and_a_fix(tmp_path):
+    # two push-pull outputs on one reset line (invented, built-in classes): a warning
+    # whose source says it has none, and whose one line says whose outputs and what to do
+    d = _builtin_design(tmp_path, """[[bus]]
+id = "rst"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller", pin = "cs" },
+  { ref = "U4", part = "mcu-3v3", pin = "cs" },
+  { ref = "U2", part = "display-controller-spi", pin = "dc" },
+]
+lines.reset = { length = "5 cm", capacitance = "1 pF/cm" }
+""")
+    (ln,) = evaluate_bus(d.bus("rst"), d).lines
+    c = ln.check("contention")
+    assert c.status == "warn" and "common practice, no source" in c.source
+    assert c.fix and "U1.cs" in c.fix and "U4.cs" in c.fix

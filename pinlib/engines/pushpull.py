@@ -195,11 +195,13 @@ def evaluate_gpio(bus: Bus, design: Design, *, analysis: dict | None = None) -> 
         result = replace(la.result, checks=list(la.result.checks))
         pp = [e for e in la.drivers if e.pin.drive == "push-pull"]
         if len(pp) > 1:
+            who = ", ".join(e.label for e in pp)
             result.add(Check("contention", "warn", len(pp), 1, "", None,
                              "two push-pull outputs on one net must never drive at once "
-                             "(common practice)",
-                             f"{len(pp)} push-pull drivers on {sig}: "
-                             + ", ".join(e.label for e in pp)))
+                             "(common practice, no source)",
+                             f"{len(pp)} push-pull drivers on {sig}: {who}",
+                             fix=f"let one of {who} drive at a time (the others "
+                                 "high-impedance), or make them open-drain with a pull-up"))
         _note_unchecked(result, la.receivers)
         res.lines.append(result)
     return res
