@@ -922,3 +922,32 @@ lines.reset = { length = "5 cm", capacitance = "1 pF/cm" }
     c = ln.check("contention")
     assert c.status == "warn" and "common practice, no source" in c.source
     assert c.fix and "U1.cs" in c.fix and "U4.cs" in c.fix
+
+
+def test_a_level_above_the_receivers_abs_max_says_a_translator_not_a_resistor(tmp_path):
+    # a 3.3 V output into a 1.8 V part's input (invented, built-in classes): the
+    # overshoot check fails on the settled level itself, which no series resistor or
+    # slower edge mends; its fix must say so (the one line gave no fix at all)
+    d = _builtin_design(tmp_path, """[[bus]]
+id = "stb"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller", pin = "sclk" },
+  { ref = "U3", part = "mcu-1v8", pin = "cipo", supply = "1.8 V" },
+  { ref = "U2", part = "display-controller-spi", pin = "dc" },
+]
+
+[bus.lines.stb]
+length = "15 cm"
+capacitance = "1 pF/cm"
+delay = "60 ps/cm"
+series_resistor = "auto"
+""")
+    (ln,) = evaluate_bus(d.bus("stb"), d).lines
+    c = next(c for c in ln.checks if c.id == "overshoot" and c.subject == "U3")
+    assert c.status == "fail"
+    assert c.fix and "level translator" in c.fix and "series resistor" in c.fix
+    # a receiver on the driver's own rail keeps no such fix
+    ok = next(c for c in ln.checks if c.id == "overshoot" and c.subject == "U2")
+    assert not ok.fix

@@ -43,12 +43,13 @@ def _si_checks(a: LineAnalysis, cases: dict, clock: float | None, clock_line: bo
     return checks
 
 
-def _swing_table(cases: dict) -> tuple[list, np.ndarray, np.ndarray]:
+def _swing_table(cases: dict) -> tuple[list, np.ndarray, np.ndarray, np.ndarray]:
     """Each driver's peak (rise: high level plus overshoot) and dip (fall: undershoot
     minus the low level): one value per driver, or on a route one per driver and node,
     each computed once (a line of N drivers and N pins costs N solves' extremes, not N²
-    edge records). [V]"""
+    edge records); and each driver's settled high level (the same at every node). [V]"""
     refs = list(cases)
+    highs = np.asarray([float(c.v_high) for c in cases.values()], dtype=float)
     peaks, dips = [], []
     for c in cases.values():  # the fast corner's edges, where a driver has one
         if c.points is None:
@@ -59,7 +60,7 @@ def _swing_table(cases: dict) -> tuple[list, np.ndarray, np.ndarray]:
             si = c.si_points
             peaks.append(si["rise"].extremes()[0])
             dips.append(si["fall"].extremes()[1])
-    return refs, np.asarray(peaks, dtype=float), np.asarray(dips, dtype=float)
+    return refs, np.asarray(peaks, dtype=float), np.asarray(dips, dtype=float), highs
 
 
 def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
@@ -68,7 +69,7 @@ def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
     abs_max = p.level("abs_max")
     if abs_max is None:
         return []
-    refs, peaks, dips, net, fast = table
+    refs, peaks, dips, highs, net, fast = table
     if net is None and refs and p.ref not in refs:  # a pin that drives none of the
         own = slice(None)                            # cases: all of them, without a mask
     else:
@@ -90,6 +91,14 @@ def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
     # resistor would go
     mask = np.ones(len(refs), dtype=bool) if isinstance(own, slice) else own
     mine = [r for r, keep in zip(refs, mask, strict=True) if keep]
+    fix = None
+    high = float(highs[own].max())
+    if high - p.vdd > allowed:
+        # the settled level alone breaks the rating: no edge rate or termination mends it
+        fix = (f"the line settles at {_fmt(high, 'V')}, above {p.label}'s abs_max at its "
+               f"{_fmt(p.vdd, 'V')} supply: a series resistor or a slower edge does not "
+               "help; shift the level (a level translator, a divider) or use a receiver "
+               "rated for it")
     by_peak = by_dip = ""
     if len(mine) > 1:
         by_peak = f" while {mine[int(np.argmax(peaks[own]))]} drives"
@@ -100,7 +109,7 @@ def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
             f"peak {_fmt(peak, 'V')} at {p.label}{by_peak} against its abs_max "
             f"{_fmt(abs_max, 'V')} at {_fmt(p.vdd, 'V')}: {_relative(above)} its "
             f"supply, {_fmt(allowed, 'V')} allowed{corner}", warn_margin=warn, subject=p.ref,
-            details={"peak": peak, "abs_max": abs_max, "supply": p.vdd}),
+            fix=fix, details={"peak": peak, "abs_max": abs_max, "supply": p.vdd}),
         # the part format records the upper rating only: the low limit is inferred
         rule_of_thumb(check_max(
             "undershoot", dip, low_allowed, "V", f"{UNDERSHOOT_RULE}; {p.source('abs_max')}",
