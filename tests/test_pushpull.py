@@ -951,3 +951,23 @@ series_resistor = "auto"
     # a receiver on the driver's own rail keeps no such fix
     ok = next(c for c in ln.checks if c.id == "overshoot" and c.subject == "U2")
     assert not ok.fix
+
+
+def test_a_high_level_below_vih_across_rails_says_to_shift_the_level(tmp_path):
+    # a 1.8 V output into a 3.3 V part's input (invented, built-in classes): VOH 1.35 V
+    # against VIH 2.31 V fails with a fix that names the cause, the two rails
+    d = _builtin_design(tmp_path, """[[bus]]
+id = "irq"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U3", part = "mcu-1v8", role = "controller", pin = "cs", supply = "1.8 V" },
+  { ref = "U1", part = "mcu-3v3", pin = "cipo" },
+]
+lines.irq = { length = "5 cm", capacitance = "1 pF/cm" }
+""")
+    (ln,) = evaluate_bus(d.bus("irq"), d).lines
+    c = ln.check("level-high")
+    assert c.status == "fail"
+    assert c.fix and "1.8 V" in c.fix and "3.3 V" in c.fix and "level translator" in c.fix
+    assert not ln.check("level-low").fix
