@@ -971,3 +971,11 @@ lines.irq = { length = "5 cm", capacitance = "1 pF/cm" }
     assert c.status == "fail"
     assert c.fix and "1.8 V" in c.fix and "3.3 V" in c.fix and "level translator" in c.fix
     assert not ln.check("level-low").fix
+
+
+def test_a_line_pull_up_is_named_in_the_notes_with_its_rail(tmp_path):
+    # where the rise comes from: the line's own resistor, its rail, and what parts add
+    d = _builtin_design(tmp_path, _OD_RESET.format(extra=', pullup = "10 kΩ"'))
+    (ln,) = evaluate_bus(d.bus("rst"), d).lines
+    (note,) = [n for n in ln.notes if n.startswith("pull-up")]
+    assert "10 kΩ" in note and "3.3 V" in note and "lines.reset.pullup" in note

@@ -409,6 +409,12 @@ def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
                 stuck.append(d)
                 continue
             pullup[d.ref] = (rp, rail)
+            if own is not None and not any(n.startswith("pull-up:") for n in res.notes):
+                both = "" if abs(rp - float(own)) <= 1e-9 * rp else (
+                    f"; with the pull-ups that parts on the line carry, {format_si(rp, 'Ω')}")
+                to = float(a.line.pullup_rail or d.vdd)
+                res.notes.append(f"pull-up: {format_si(float(own), 'Ω')} to the bus supply "
+                                 f"{format_si(to, 'V')} (lines.{a.signal}.pullup){both}")
             a.models[d.ref] = _open_drain_model(d.pin, d.vdd, rp, res.notes, d.label)
         else:
             a.models[d.ref] = _driver_model(d, res.notes)
