@@ -1613,6 +1613,12 @@ def _(env):
         'geometry = "g" }', 'geometry = "g", pullup = "10 kΩ" }')), env)
 
 
+@case("DEVICE_PIN_NOT_GPIO")
+def _(env):
+    return _fails(lambda e: e.design(SPI_BUS.replace(
+        'role = "controller" }', 'role = "controller", pin = "cs" }')), env)
+
+
 @case("GPIO_PIN_NAMES_NO_LINE")
 def _(env):
     return _fails(lambda e: e.design("""

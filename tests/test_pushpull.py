@@ -979,3 +979,26 @@ def test_a_line_pull_up_is_named_in_the_notes_with_its_rail(tmp_path):
     (ln,) = evaluate_bus(d.bus("rst"), d).lines
     (note,) = [n for n in ln.notes if n.startswith("pull-up")]
     assert "10 kΩ" in note and "3.3 V" in note and "lines.reset.pullup" in note
+
+
+@pytest.mark.parametrize("protocol, extra", [
+    ("i2c", 'trace = { length = "5 cm", capacitance = "1 pF/cm" }'),
+    ("spi", 'clock = "1 MHz"\nlines.sclk = { length = "5 cm", capacitance = "1 pF/cm" }'),
+])
+def test_a_device_pin_off_a_gpio_bus_is_refused(tmp_path, protocol, extra):
+    # pin chooses a device's pin on a GPIO line only; on another bus it was read by
+    # nothing and passed in silence (the bus's own pin functions decide there)
+    second = "eeprom-i2c" if protocol == "i2c" else "nor-flash-spi"
+    with pytest.raises(DesignError) as got:
+        _builtin_design(tmp_path, f"""[[bus]]
+id = "b"
+protocol = "{protocol}"
+supply = "3.3 V"
+devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller", pin = "sda" }},
+  {{ ref = "U2", part = "{second}" }},
+]
+{extra}
+""")
+    assert got.value.field == "bus[0].devices[0].pin" and got.value.line == 9
+    assert "GPIO" in str(got.value)

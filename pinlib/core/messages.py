@@ -243,6 +243,7 @@ BRIDGE_IN_TWO_SEGMENTS = "a bridging part must appear in two segments, once per 
 BUS_HAS_NO_SEGMENTS = "a {protocol} bus has no segments"
 BUS_HAS_NO_KEY = "a {protocol} bus has no {key}"
 LINE_PULLUP_NOT_GPIO = "only a GPIO line takes a pullup"
+DEVICE_PIN_NOT_GPIO = "only a device on a GPIO bus takes a pin"
 GPIO_PIN_NAMES_NO_LINE = "on a GPIO bus of several lines a device's pin names the line it is on"
 BUS_NEEDS_SUPPLY = "a bus needs its supply"
 UNKNOWN_SPI_SIGNAL = "unknown SPI signal"

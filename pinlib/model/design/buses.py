@@ -30,6 +30,7 @@ def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bu
     if not any(d.is_controller for d in all_devices):
         raise err(M.BUS_NEEDS_CONTROLLER, bloc + ("devices",),
                   hint="mark one device role = \"controller\"")
+    _no_device_pin(all_devices, err)
     _check_open_drain_pins(rb, segments, err)
     _check_bridges(segments, err)
     return Bus(rb.id, rb.protocol, mode, rb.clock, segments[0].supply,
@@ -143,6 +144,8 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
                   hint="mark one device role = \"controller\"")
     if rb.protocol == "gpio":
         _check_gpio_pins(devices, tuple(rb.lines), err)
+    else:
+        _no_device_pin(devices, err)
     lines = {}
     for sig, rt in rb.lines.items():
         loc = bloc + ("lines", sig)
@@ -179,6 +182,15 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
     return Bus(rb.id, rb.protocol, None, rb.clock, rb.supply, rb.supply_tolerance or 0.0, (),
                devices, lines, rb.spi_mode, rb.title, rb.capacitance_tolerance or 0.0,
                rb.length_tolerance or 0.0, bloc)
+
+
+def _no_device_pin(devices, err) -> None:
+    """``pin`` chooses a device's pin on a GPIO line; on another bus nothing reads it
+    (the pins of the bus's functions are used): refused at the device's ``pin``."""
+    for d in devices:
+        if d.pin is not None:
+            raise err(M.DEVICE_PIN_NOT_GPIO, d.loc + ("pin",), value=d.pin,
+                      hint="the bus uses the part's pins of its functions; leave pin out")
 
 
 def _check_gpio_pins(devices, lines: tuple, err) -> None:
