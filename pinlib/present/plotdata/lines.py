@@ -249,8 +249,9 @@ def _window_end(waves) -> tuple[float, float]:
     lossless model keep a few % of the swing to the end), within :data:`_RING_MARGIN`
     times the largest excursion over the last part of its record (:data:`_RING_TAIL`, the
     second half): it has settled into the ringing it keeps, and the axis shows the edges
-    rather than the solver's whole record.  Returns the end [s] and the largest such excursion as a fraction of
-    the swing (0 when every trace settles within the band in its record) [1].
+    rather than the solver's whole record.  Returns the end [s] and the largest such
+    excursion as a fraction of the swing (0 when every trace settles within the band in
+    its record) [1].
     """
     end, ringing = 0.0, 0.0
     record = max(float(w.t[-1]) for w in waves)
