@@ -1002,3 +1002,29 @@ devices = [
 """)
     assert got.value.field == "bus[0].devices[0].pin" and got.value.line == 9
     assert "GPIO" in str(got.value)
+
+
+def test_a_line_no_device_drives_is_named_at_its_own_line(tmp_path):
+    # devices without pin on a one-line bus, none with a pin of the line's name: the
+    # error named 'bus.rst.lines.reset' (a form no other error uses) at the [[bus]] line
+    from pinlib.core.errors import PinlibError
+    from pinlib.engines.dispatch import check_file
+
+    path = tmp_path / "b.toml"
+    path.write_text('''format = "pinlib.design/1"
+title = "GPIO review (invented)"
+
+[[bus]]
+id = "rst"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "display-controller-spi" },
+]
+lines.reset = { length = "5 cm", capacitance = "1 pF/cm" }
+''', encoding="utf-8")
+    with pytest.raises(PinlibError) as got:
+        check_file(path)
+    assert got.value.field == "bus[0].lines.reset" and got.value.line == 12
+    assert "no device drives" in str(got.value)

@@ -27,6 +27,7 @@ from dataclasses import replace
 
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError
+from pinlib.core.tomlfile import dotted
 from pinlib.engines.ppsupply import supply_checks, supply_rows
 from pinlib.engines.pushline import Endpoint, LineInputs, device_supply
 from pinlib.engines.spi import evaluate_spi, spi_line_inputs
@@ -132,10 +133,11 @@ def gpio_line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
         drivers = [e for e in eps if e.drives]
         receivers = [e for e in eps if e.pin.drive == "input"]
         if not drivers:
-            raise DesignError(M.NO_DRIVER_ON_LINE,
-                              field=f"bus.{bus.id}.lines.{sig}",
+            err = DesignError(M.NO_DRIVER_ON_LINE, field=dotted(line.loc) or f"lines.{sig}",
                               hint="give each device's pin (pin = \"NAME\") or use parts with "
                                    "a push-pull or open-drain pin of that name")
+            err.loc = line.loc  # the line's own place in the file (the dispatcher's line)
+            raise err
         if line.pullup is not None:  # to the bus rail, as varied on this board
             line = replace(line, pullup_rail=float(bus.supply))
         out.append(LineInputs(sig, line, tuple(drivers), tuple(eps), tuple(receivers),
