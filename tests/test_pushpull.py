@@ -1005,8 +1005,8 @@ devices = [
 
 
 def test_a_line_no_device_drives_is_named_at_its_own_line(tmp_path):
-    # devices without pin on a one-line bus, none with a pin of the line's name: the
-    # error named 'bus.rst.lines.reset' (a form no other error uses) at the [[bus]] line
+    # devices on the line through input pins alone: the error named
+    # 'bus.rst.lines.reset' (a form no other error uses) at the [[bus]] line
     from pinlib.core.errors import PinlibError
     from pinlib.engines.dispatch import check_file
 
@@ -1019,7 +1019,7 @@ id = "rst"
 protocol = "gpio"
 supply = "3.3 V"
 devices = [
-  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U1", part = "mcu-3v3", role = "controller", pin = "cipo" },
   { ref = "U2", part = "display-controller-spi" },
 ]
 lines.reset = { length = "5 cm", capacitance = "1 pF/cm" }
@@ -1028,3 +1028,42 @@ lines.reset = { length = "5 cm", capacitance = "1 pF/cm" }
         check_file(path)
     assert got.value.field == "bus[0].lines.reset" and got.value.line == 12
     assert "no device drives" in str(got.value)
+
+
+def test_a_gpio_device_on_no_line_is_refused_at_the_device(tmp_path):
+    # a receiver listed without pin whose part has no pin named like the line and no
+    # single gpio pin sat on no line: it got a supply check and passed, the reset it was
+    # meant to receive never checked at it
+    with pytest.raises(DesignError) as got:
+        _builtin_design(tmp_path, """[[bus]]
+id = "rst"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller", pin = "cs" },
+  { ref = "U2", part = "display-controller-spi", pin = "dc" },
+  { ref = "U5", part = "nor-flash-spi" },
+]
+lines.reset = { length = "5 cm", capacitance = "1 pF/cm" }
+""")
+    err = got.value
+    assert err.field == "bus[0].devices[2]" and err.line == 11
+    assert "U5" in str(err) and "pin = " in str(err) and "cs" in str(err)
+
+
+def test_a_gpio_controller_on_no_line_is_noted(tmp_path):
+    # every bus names a controller; on a GPIO bus it may stand apart from the line (an
+    # interrupt between two other parts), which the notes say
+    d = _builtin_design(tmp_path, """[[bus]]
+id = "irq"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U4", part = "io-expander-i2c", pin = "int" },
+  { ref = "U2", part = "display-controller-spi", pin = "dc" },
+]
+lines.int = { length = "5 cm", capacitance = "1 pF/cm", pullup = "10 kΩ" }
+""")
+    res = evaluate_bus(d.bus("irq"), d)
+    assert any(n.startswith("U1 (mcu-3v3), the bus's controller, is on none") for n in res.notes)

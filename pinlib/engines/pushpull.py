@@ -193,6 +193,12 @@ def evaluate_gpio(bus: Bus, design: Design, *, analysis: dict | None = None) -> 
     res = BusResult(id=bus.id, protocol=bus.protocol, workings=solved)
     if not bus.lines:
         res.notes.append("no routed lines")
+    for d in bus.devices:  # the loader refuses a peripheral on no line
+        if d.is_controller and bus.lines and all(
+                gpio_pin(d, sig, len(bus.lines)) is None for sig in bus.lines):
+            res.notes.append(f"{d.ref} ({d.part_id}), the bus's controller, is on none of "
+                             "its lines (no pin named like a line, no single gpio pin, no "
+                             "pin key): nothing is checked at it")
     for sig, la in solved.items():
         result = replace(la.result, checks=list(la.result.checks))
         pp = [e for e in la.drivers if e.pin.drive == "push-pull"]

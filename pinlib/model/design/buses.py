@@ -10,7 +10,7 @@ from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_of
 from pinlib.model.design.objects import Bus, Device, Line, Segment
 from pinlib.model.design.raw import SIGNAL_FUNCTION, SPI_SIGNALS, RawBus
-from pinlib.model.design.route import look_alikes, route_of
+from pinlib.model.design.route import look_alikes, on_line, route_of
 
 #: Older names of the SPI signals still on schematics and in datasheets, and the name a
 #: design gives each (common practice, no source; SDI and SDO are left out: which line
@@ -197,7 +197,8 @@ def _check_gpio_pins(devices, lines: tuple, err) -> None:
     """Each ``pin`` a device of a GPIO bus names is a pin of its part (of its side, for a
     bridge), and on a bus of several lines the name of one of them (the rule of
     :func:`pinlib.engines.pushpull.gpio_pin`; another name would select nothing):
-    refused at the device's ``pin``."""
+    refused at the device's ``pin``; and each peripheral is on a line (refused at the
+    device)."""
     for d in devices:
         if d.pin is None:
             continue
@@ -211,6 +212,20 @@ def _check_gpio_pins(devices, lines: tuple, err) -> None:
                       expected="one of the bus's lines: " + ", ".join(lines),
                       hint="to put a pin of another name on a line, give that line a bus "
                            "of its own")
+    # a peripheral on no line serves no purpose there (a misspelt or missing pin); the
+    # controller every bus names may stand apart from its lines (the engine notes it)
+    for d in devices:
+        if d.is_controller:
+            continue
+        if lines and not any(on_line(d, "gpio", sig, len(lines)) for sig in lines):
+            side = (d.side or "a") if d.is_bridge else None
+            pins = d.part.sides[side].pins if side else d.part.pins
+            raise err(M.GPIO_DEVICE_ON_NO_LINE, d.loc, value=d.ref,
+                      hint=f"{d.part_id} has no pin named "
+                           + " or ".join(repr(s) for s in lines)
+                           + (" and no single gpio pin" if len(lines) == 1 else "")
+                           + "; give the device its pin (pin = \"NAME\"; pins: "
+                           + (", ".join(pins) or "none") + ")")
 
 
 def _one_part_per_reference(buses, err, fname, index) -> None:
