@@ -554,14 +554,14 @@ lines.irq = { length = "6 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }
 
     irq = evaluate_bus(d.bus("irq"), d)
     (ln,) = irq.lines
-    c_total = 6e-12 + 5e-12 + 5e-12  # trace, controller input, module input
+    # trace, controller input, module input, and the released sink's own pin (U2.irq: it
+    # is on the net whether it sinks or not, and the pull-up charges it with the rest)
+    c_total = 6e-12 + 5e-12 + 5e-12 + 5e-12
     assert ln.figures["load_capacitance"].value == pytest.approx(c_total, rel=1e-12)
     # derived from the RC step (docs/references.md, RC edges): 10-90 % = ln 9 Rp C through the
-    # module's 4.7 kΩ pull-up (a pull-up >> Z0 charges the line as one capacitance), C the
-    # load and the released sink's own pin (U2.irq, 5 pF: it is on the net whether it
-    # sinks or not)
+    # module's 4.7 kΩ pull-up (a pull-up >> Z0 charges the line as one capacitance)
     assert ln.figures["edge_rise_time"].value == pytest.approx(
-        math.log(9.0) * 4.7e3 * (c_total + 5e-12), rel=1e-3)
+        math.log(9.0) * 4.7e3 * c_total, rel=1e-3)
     # derived: the low level is the sink (0.4 V / 4 mA = 100 Ω) against the pull-up,
     # minus nothing; the high level drops by the leakage (3 x 1 µA) through 4.7 kΩ
     v_high = VDD - 3e-6 * 4.7e3
@@ -831,6 +831,16 @@ def test_an_open_drain_gpio_line_takes_a_pull_up_resistor_of_its_own(tmp_path):
     # invented values of the built-in classes, 5 pF of trace and 10 pF at each pin
     c_total = 5e-12 + 10e-12 + 10e-12
     # derived from the RC step (docs/references.md, RC edges): 10-90 % = ln 9 Rp C
+    assert ln.figures["edge_rise_time"].value == pytest.approx(
+        math.log(9.0) * 10e3 * c_total, rel=1e-3)
+    # and the load it states is the one the rise charges
+    assert ln.figures["load_capacitance"].value == pytest.approx(c_total, rel=1e-12)
+    # the same on a route, each pin at its own point
+    d = _builtin_design(tmp_path, _OD_RESET.format(extra=', pullup = "10 kΩ"').replace(
+        'lines.reset = { length = "5 cm", capacitance = "1 pF/cm", pullup = "10 kΩ" }',
+        'lines.reset = { pullup = "10 kΩ", route = [{ from = "U10", to = "U2", '
+        'length = "5 cm", capacitance = "1 pF/cm" }] }'), name="route.toml")
+    (ln,) = evaluate_bus(d.bus("rst"), d).lines
     assert ln.figures["edge_rise_time"].value == pytest.approx(
         math.log(9.0) * 10e3 * c_total, rel=1e-3)
     # derived: the high level drops by the two pins' leakage (1 µA each) through 10 kΩ;
