@@ -1077,3 +1077,25 @@ lines.int = { length = "5 cm", capacitance = "1 pF/cm", pullup = "10 kΩ" }
 """)
     res = evaluate_bus(d.bus("irq"), d)
     assert any(n.startswith("U1 (mcu-3v3), the bus's controller, is on none") for n in res.notes)
+
+
+def test_a_push_pull_output_beside_an_open_drain_one_is_contention(tmp_path):
+    # a reset line driven push-pull by U1 and pulled low by an open-drain output (invented,
+    # built-in classes): U1 driving high while U4 sinks shorts the two, as two push-pull
+    # outputs would; only the second case warned
+    d = _builtin_design(tmp_path, """[[bus]]
+id = "rst"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller", pin = "cs" },
+  { ref = "U4", part = "io-expander-i2c", pin = "int" },
+  { ref = "U2", part = "display-controller-spi", pin = "dc" },
+]
+lines.reset = { length = "5 cm", capacitance = "1 pF/cm", pullup = "10 kΩ" }
+""")
+    (ln,) = evaluate_bus(d.bus("rst"), d).lines
+    c = ln.check("contention")
+    assert c is not None and c.status == "warn"
+    assert "U1.cs" in c.message and "U4.int" in c.message
+    assert "common practice, no source" in c.source

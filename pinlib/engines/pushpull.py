@@ -202,14 +202,21 @@ def evaluate_gpio(bus: Bus, design: Design, *, analysis: dict | None = None) -> 
     for sig, la in solved.items():
         result = replace(la.result, checks=list(la.result.checks))
         pp = [e for e in la.drivers if e.pin.drive == "push-pull"]
-        if len(pp) > 1:
-            who = ", ".join(e.label for e in pp)
-            result.add(Check("contention", "warn", len(pp), 1, "", None,
-                             "two push-pull outputs on one net must never drive at once "
-                             "(common practice, no source)",
-                             f"{len(pp)} push-pull drivers on {sig}: {who}",
+        od = [e for e in la.drivers if e.pin.drive == "open-drain"]
+        if len(pp) > 1 or (pp and od):
+            # a push-pull output driving high against an open-drain one sinking shorts
+            # them as two push-pull outputs would
+            both = pp + od
+            who = ", ".join(e.label for e in both)
+            kinds = (f"{len(pp)} push-pull drivers" if not od else
+                     f"{len(both)} drivers, {len(pp)} push-pull and {len(od)} open-drain,")
+            result.add(Check("contention", "warn", len(both), 1, "", None,
+                             "a push-pull output must never drive against another output "
+                             "on one net (common practice, no source)",
+                             f"{kinds} on {sig}: {who}",
                              fix=f"let one of {who} drive at a time (the others "
-                                 "high-impedance), or make them open-drain with a pull-up"))
+                                 "high-impedance), or make them all open-drain with a "
+                                 "pull-up"))
         _note_unchecked(result, la.receivers)
         res.lines.append(result)
     return res
