@@ -1607,6 +1607,44 @@ def _(env):
     return _fails(lambda e: e.design(SPI_BUS + 'pullup = "2.2 kΩ"\n'), env)
 
 
+@case("LINE_PULLUP_NOT_GPIO")
+def _(env):
+    return _fails(lambda e: e.design(SPI_BUS.replace(
+        'geometry = "g" }', 'geometry = "g", pullup = "10 kΩ" }')), env)
+
+
+@case("DEVICE_PIN_NOT_GPIO")
+def _(env):
+    return _fails(lambda e: e.design(SPI_BUS.replace(
+        'role = "controller" }', 'role = "controller", pin = "cs" }')), env)
+
+
+@case("GPIO_DEVICE_ON_NO_LINE")
+def _(env):
+    return _fails(lambda e: e.design("""
+[[bus]]
+id = "rst"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [{ ref = "U1", part = "mcu-3v3", role = "controller", pin = "cs" },
+           { ref = "U5", part = "nor-flash-spi" }]
+lines.reset = { length = "5 cm", capacitance = "1 pF/cm" }
+"""), env)
+
+
+@case("GPIO_PIN_NAMES_NO_LINE")
+def _(env):
+    return _fails(lambda e: e.design("""
+[[bus]]
+id = "ctl"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [{ ref = "U1", part = "mcu-3v3", role = "controller", pin = "cs" }]
+lines.reset = { length = "5 cm", capacitance = "1 pF/cm" }
+lines.irq = { length = "5 cm", capacitance = "1 pF/cm" }
+"""), env)
+
+
 @case("BUS_NEEDS_SUPPLY")
 def _(env):
     return _fails(lambda e: e.design(SPI_BUS.replace('supply = "3.3 V"\n', "")), env)
@@ -2418,7 +2456,10 @@ def _(env):
 
 @case("NO_DRIVER_ON_LINE")
 def _(env):
-    text = GPIO_BUS.replace(', pin = "{pin}"', "")
+    # both on the line through input pins: none drives it
+    text = GPIO_BUS.replace("{pin}", "cipo").replace(
+        '{ ref = "U2", part = "eeprom-i2c" }',
+        '{ ref = "U2", part = "display-controller-spi", pin = "dc" }')
     return _fails(lambda e: _check(e.design(text)), env)
 
 

@@ -584,3 +584,36 @@ devices = [
     np.testing.assert_allclose(tab.margin, eng.margin, rtol=0, atol=1e-12)  # s
     assert np.all(np.abs(eng.margin) < 1e-8)   # seconds, not a fraction or ±inf
     assert by_table.engine_boards < n / 2
+
+
+def test_the_table_note_names_each_rail_when_two_rails_vary(tmp_path):
+    # invented GPIO reset line of built-in classes, a 1.8 V receiver on a 3.3 V bus: the
+    # note read "(supply factor 0.95–1.05, supply factor 0.95–1.05)", two axes alike
+    from types import SimpleNamespace
+
+    path = tmp_path / "two-rails.toml"
+    path.write_text('''format = "pinlib.design/1"
+title = "two rails (invented)"
+
+[[bus]]
+id = "reset"
+protocol = "gpio"
+supply = "3.3 V"
+supply_tolerance = "5 %"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller", pin = "cs" },
+  { ref = "U2", part = "display-controller-spi", pin = "dc", supply = "1.8 V" },
+]
+lines.reset = { length = "5 cm", capacitance = "1 pF/cm", delay = "60 ps/cm" }
+''', encoding="utf-8")
+    design = load_design(path)
+    bus = design.buses[0]
+    axes = pptable.axes_of(ppb.parameter_specs(bus), 1.0, 0.0)
+    assert [ax.kind for ax in axes] == ["supply", "supply"]
+    grid = SimpleNamespace(axes=axes, evaluations=9, max_error=0.0, has_jumps=lambda: False)
+    note = ppb._table_note(bus, grid)
+    assert "supply factor of rail 3.3 V 0.95–1.05" in note, note
+    assert "supply factor of rail 1.8 V 0.95–1.05" in note, note
+    # one axis of a kind keeps its short name (the goldens' notes)
+    grid.axes = axes[:1]
+    assert "(supply factor 0.95–1.05)" in ppb._table_note(bus, grid)

@@ -554,7 +554,9 @@ lines.irq = { length = "6 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }
 
     irq = evaluate_bus(d.bus("irq"), d)
     (ln,) = irq.lines
-    c_total = 6e-12 + 5e-12 + 5e-12  # trace, controller input, module input
+    # trace, controller input, module input, and the released sink's own pin (U2.irq: it
+    # is on the net whether it sinks or not, and the pull-up charges it with the rest)
+    c_total = 6e-12 + 5e-12 + 5e-12 + 5e-12
     assert ln.figures["load_capacitance"].value == pytest.approx(c_total, rel=1e-12)
     # derived from the RC step (docs/references.md, RC edges): 10-90 % = ln 9 Rp C through the
     # module's 4.7 kΩ pull-up (a pull-up >> Z0 charges the line as one capacitance)
@@ -740,3 +742,360 @@ def test_the_termination_check_gives_its_target_as_no_limit(lib):
         assert chk.status == "pass" and chk.margin is None
         assert chk.details["rs_ideal"] == pytest.approx(30.0, rel=1e-12)
     assert "Z0 - r_out = 30 Ω, nearest E24" in long_.message
+
+
+# --------------------------------------------------------------------------- GPIO review
+# (invented boards of built-in classes, written as a new user would)
+
+
+def _builtin_design(tmp_path, body, name="b.toml"):
+    path = tmp_path / name
+    path.write_text('format = "pinlib.design/1"\ntitle = "GPIO review (invented)"\n\n'
+                    + body, encoding="utf-8")
+    return load_design(path)
+
+
+@pytest.mark.parametrize("extra, who", [
+    ("", None),                                                   # the controller alone
+    ('  { ref = "J1", part = "board-to-board-connector", pin = "gpio" },\n', "J1.gpio"),
+])
+def test_a_gpio_line_nothing_checks_at_says_so(tmp_path, extra, who):
+    # a line with no input pin, or only inputs without levels or abs_max (a connector
+    # contact), passes with no check at a receiver: its notes must say that nothing
+    # there was checked, and where to put the part that receives it
+    d = _builtin_design(tmp_path, f"""[[bus]]
+id = "rst"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller", pin = "cs" }},
+{extra}]
+lines.reset = {{ length = "5 cm", capacitance = "1 pF/cm" }}
+""")
+    (ln,) = evaluate_bus(d.bus("rst"), d).lines
+    assert not [c for c in ln.checks if c.id in ("level-high", "overshoot")]
+    (note,) = [n for n in ln.notes if "no level" in n]
+    if who is None:
+        assert "no device on the line receives it" in note
+    else:
+        assert who in note and "abs_max" in note
+
+
+def test_a_gpio_pin_the_part_lacks_names_the_device_line_and_field(tmp_path):
+    from pinlib.cli import main
+
+    path = tmp_path / "b.toml"
+    path.write_text('''format = "pinlib.design/1"
+title = "GPIO review (invented)"
+
+[[bus]]
+id = "rst"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller", pin = "cs" },
+  { ref = "U2", part = "display-controller-spi", pin = "rst" },
+]
+lines.reset = { length = "5 cm", capacitance = "1 pF/cm" }
+''', encoding="utf-8")
+    with pytest.raises(DesignError) as got:
+        load_design(path)
+    err = got.value
+    assert err.line == 10 and err.field == "bus[0].devices[1].pin"
+    text = str(err)
+    assert "'rst'" in text and "dc" in text and "display-controller-spi" in text
+    assert main(["check", str(path)]) == 2
+
+
+_OD_RESET = """[[bus]]
+id = "rst"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  {{ ref = "U10", part = "io-expander-i2c", role = "controller", pin = "int" }},
+  {{ ref = "U2", part = "display-controller-spi", pin = "dc" }},
+]
+lines.reset = {{ length = "5 cm", capacitance = "1 pF/cm"{extra} }}
+"""
+
+
+def test_an_open_drain_gpio_line_takes_a_pull_up_resistor_of_its_own(tmp_path):
+    # an active-low reset from an open-drain output (invented, built-in classes): with
+    # no part carrying a pull-up the line could not be described at all; its own
+    # resistor goes to the bus supply and the line rises through it
+    d = _builtin_design(tmp_path, _OD_RESET.format(extra=', pullup = "10 kΩ"'))
+    (ln,) = evaluate_bus(d.bus("rst"), d).lines
+    assert ln.check("pull-up") is None
+    # the pull-up charges every pin on the net, the open-drain output's own included
+    # (its c_in is there whether it sinks or not, as an I2C bus's Cb counts every pin):
+    # invented values of the built-in classes, 5 pF of trace and 10 pF at each pin
+    c_total = 5e-12 + 10e-12 + 10e-12
+    # derived from the RC step (docs/references.md, RC edges): 10-90 % = ln 9 Rp C
+    assert ln.figures["edge_rise_time"].value == pytest.approx(
+        math.log(9.0) * 10e3 * c_total, rel=1e-3)
+    # and the load it states is the one the rise charges
+    assert ln.figures["load_capacitance"].value == pytest.approx(c_total, rel=1e-12)
+    # the same on a route, each pin at its own point
+    d = _builtin_design(tmp_path, _OD_RESET.format(extra=', pullup = "10 kΩ"').replace(
+        'lines.reset = { length = "5 cm", capacitance = "1 pF/cm", pullup = "10 kΩ" }',
+        'lines.reset = { pullup = "10 kΩ", route = [{ from = "U10", to = "U2", '
+        'length = "5 cm", capacitance = "1 pF/cm" }] }'), name="route.toml")
+    (ln,) = evaluate_bus(d.bus("rst"), d).lines
+    assert ln.figures["edge_rise_time"].value == pytest.approx(
+        math.log(9.0) * 10e3 * c_total, rel=1e-3)
+    # derived: the high level drops by the two pins' leakage (1 µA each) through 10 kΩ;
+    # the low level is the sink (0.4 V / 3 mA) against 10 kΩ from that level
+    v_high = VDD - 2e-6 * 10e3
+    assert ln.check("level-high").value == pytest.approx(v_high, rel=1e-9)
+    r_sink = 0.4 / 3e-3
+    assert ln.check("level-low").value == pytest.approx(v_high * r_sink / (r_sink + 10e3),
+                                                        rel=1e-6)
+    # without it, the failing pull-up check says how to give one
+    d = _builtin_design(tmp_path, _OD_RESET.format(extra=""), name="none.toml")
+    (ln,) = evaluate_bus(d.bus("rst"), d).lines
+    assert "lines.reset.pullup" in ln.check("pull-up").fix
+
+
+def test_a_line_pull_up_pulls_to_the_varied_rail(tmp_path):
+    # the resistor goes to the bus supply as each board varies it (corners): at the
+    # rail's +5 % corner the high level is 3.465 V less the leakage drop
+    d = _builtin_design(tmp_path, _OD_RESET.format(extra=', pullup = "10 kΩ"').replace(
+        'supply = "3.3 V"\n', 'supply = "3.3 V"\nsupply_tolerance = "5 %"\n', 1))
+    (ln,) = evaluate_bus(d.bus("rst"), d).lines
+    # derived: the level-high check's worst corner is the low rail, 3.135 V less 20 mV
+    assert ln.check("level-high").value == pytest.approx(3.3 * 0.95 - 2e-6 * 10e3, rel=1e-9)
+
+
+@pytest.mark.parametrize("body, field", [
+    ("""[[bus]]
+id = "s"
+protocol = "spi"
+clock = "1 MHz"
+supply = "3.3 V"
+devices = [{ ref = "U1", part = "mcu-3v3", role = "controller" },
+           { ref = "U2", part = "nor-flash-spi" }]
+lines.sclk = { length = "5 cm", capacitance = "1 pF/cm", pullup = "10 kΩ" }
+""", "bus[0].lines.sclk.pullup"),
+    ("""[[bus]]
+id = "i"
+protocol = "i2c"
+supply = "3.3 V"
+trace = { length = "5 cm", capacitance = "1 pF/cm", pullup = "10 kΩ" }
+devices = [{ ref = "U1", part = "mcu-3v3", role = "controller" },
+           { ref = "U2", part = "eeprom-i2c" }]
+""", "bus[0].trace.pullup"),
+])
+def test_a_line_pull_up_is_refused_off_a_gpio_line(tmp_path, body, field):
+    with pytest.raises(DesignError) as got:
+        _builtin_design(tmp_path, body)
+    assert got.value.field == field
+    assert got.value.line == (11 if "lines" in field else 8)
+    assert "only a GPIO line takes a pullup" in str(got.value)
+
+
+def test_a_pin_that_names_no_line_of_a_bus_of_several_is_refused_at_the_device(tmp_path):
+    # on a bus of several lines a device's pin must name its line (docs/formats/
+    # design.md); pin = "cs" selected nothing and the error blamed the line instead:
+    # "no device drives this line; give each device's pin", which the user had done
+    with pytest.raises(DesignError) as got:
+        _builtin_design(tmp_path, """[[bus]]
+id = "ctl"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller", pin = "cs" },
+  { ref = "U2", part = "display-controller-spi", pin = "dc" },
+]
+lines.reset = { length = "5 cm", capacitance = "1 pF/cm" }
+lines.irq = { length = "5 cm", capacitance = "1 pF/cm" }
+""")
+    err = got.value
+    assert err.field == "bus[0].devices[0].pin" and err.line == 9
+    assert "'cs'" in str(err) and "reset, irq" in str(err) and "bus of its own" in str(err)
+
+
+def test_contention_is_a_rule_of_thumb_that_names_the_drivers_and_a_fix(tmp_path):
+    # two push-pull outputs on one reset line (invented, built-in classes): a warning
+    # whose source says it has none, and whose one line says whose outputs and what to do
+    d = _builtin_design(tmp_path, """[[bus]]
+id = "rst"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller", pin = "cs" },
+  { ref = "U4", part = "mcu-3v3", pin = "cs" },
+  { ref = "U2", part = "display-controller-spi", pin = "dc" },
+]
+lines.reset = { length = "5 cm", capacitance = "1 pF/cm" }
+""")
+    (ln,) = evaluate_bus(d.bus("rst"), d).lines
+    c = ln.check("contention")
+    assert c.status == "warn" and "common practice, no source" in c.source
+    assert c.fix and "U1.cs" in c.fix and "U4.cs" in c.fix
+
+
+def test_a_level_above_the_receivers_abs_max_says_a_translator_not_a_resistor(tmp_path):
+    # a 3.3 V output into a 1.8 V part's input (invented, built-in classes): the
+    # overshoot check fails on the settled level itself, which no series resistor or
+    # slower edge mends; its fix must say so (the one line gave no fix at all)
+    d = _builtin_design(tmp_path, """[[bus]]
+id = "stb"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller", pin = "sclk" },
+  { ref = "U3", part = "mcu-1v8", pin = "cipo", supply = "1.8 V" },
+  { ref = "U2", part = "display-controller-spi", pin = "dc" },
+]
+
+[bus.lines.stb]
+length = "15 cm"
+capacitance = "1 pF/cm"
+delay = "60 ps/cm"
+series_resistor = "auto"
+""")
+    (ln,) = evaluate_bus(d.bus("stb"), d).lines
+    c = next(c for c in ln.checks if c.id == "overshoot" and c.subject == "U3")
+    assert c.status == "fail"
+    assert c.fix and "level translator" in c.fix and "series resistor" in c.fix
+    # a receiver on the driver's own rail keeps no such fix
+    ok = next(c for c in ln.checks if c.id == "overshoot" and c.subject == "U2")
+    assert not ok.fix
+
+
+def test_a_high_level_below_vih_across_rails_says_to_shift_the_level(tmp_path):
+    # a 1.8 V output into a 3.3 V part's input (invented, built-in classes): VOH 1.35 V
+    # against VIH 2.31 V fails with a fix that names the cause, the two rails
+    d = _builtin_design(tmp_path, """[[bus]]
+id = "irq"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U3", part = "mcu-1v8", role = "controller", pin = "cs", supply = "1.8 V" },
+  { ref = "U1", part = "mcu-3v3", pin = "cipo" },
+]
+lines.irq = { length = "5 cm", capacitance = "1 pF/cm" }
+""")
+    (ln,) = evaluate_bus(d.bus("irq"), d).lines
+    c = ln.check("level-high")
+    assert c.status == "fail"
+    assert c.fix and "1.8 V" in c.fix and "3.3 V" in c.fix and "level translator" in c.fix
+    assert not ln.check("level-low").fix
+
+
+def test_a_line_pull_up_is_named_in_the_notes_with_its_rail(tmp_path):
+    # where the rise comes from: the line's own resistor, its rail, and what parts add
+    d = _builtin_design(tmp_path, _OD_RESET.format(extra=', pullup = "10 kΩ"'))
+    (ln,) = evaluate_bus(d.bus("rst"), d).lines
+    (note,) = [n for n in ln.notes if n.startswith("pull-up")]
+    assert "10 kΩ" in note and "3.3 V" in note and "lines.reset.pullup" in note
+
+
+@pytest.mark.parametrize("protocol, extra", [
+    ("i2c", 'trace = { length = "5 cm", capacitance = "1 pF/cm" }'),
+    ("spi", 'clock = "1 MHz"\nlines.sclk = { length = "5 cm", capacitance = "1 pF/cm" }'),
+])
+def test_a_device_pin_off_a_gpio_bus_is_refused(tmp_path, protocol, extra):
+    # pin chooses a device's pin on a GPIO line only; on another bus it was read by
+    # nothing and passed in silence (the bus's own pin functions decide there)
+    second = "eeprom-i2c" if protocol == "i2c" else "nor-flash-spi"
+    with pytest.raises(DesignError) as got:
+        _builtin_design(tmp_path, f"""[[bus]]
+id = "b"
+protocol = "{protocol}"
+supply = "3.3 V"
+devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller", pin = "sda" }},
+  {{ ref = "U2", part = "{second}" }},
+]
+{extra}
+""")
+    assert got.value.field == "bus[0].devices[0].pin" and got.value.line == 9
+    assert "GPIO" in str(got.value)
+
+
+def test_a_line_no_device_drives_is_named_at_its_own_line(tmp_path):
+    # devices on the line through input pins alone: the error named
+    # 'bus.rst.lines.reset' (a form no other error uses) at the [[bus]] line
+    from pinlib.core.errors import PinlibError
+    from pinlib.engines.dispatch import check_file
+
+    path = tmp_path / "b.toml"
+    path.write_text('''format = "pinlib.design/1"
+title = "GPIO review (invented)"
+
+[[bus]]
+id = "rst"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller", pin = "cipo" },
+  { ref = "U2", part = "display-controller-spi" },
+]
+lines.reset = { length = "5 cm", capacitance = "1 pF/cm" }
+''', encoding="utf-8")
+    with pytest.raises(PinlibError) as got:
+        check_file(path)
+    assert got.value.field == "bus[0].lines.reset" and got.value.line == 12
+    assert "no device drives" in str(got.value)
+
+
+def test_a_gpio_device_on_no_line_is_refused_at_the_device(tmp_path):
+    # a receiver listed without pin whose part has no pin named like the line and no
+    # single gpio pin sat on no line: it got a supply check and passed, the reset it was
+    # meant to receive never checked at it
+    with pytest.raises(DesignError) as got:
+        _builtin_design(tmp_path, """[[bus]]
+id = "rst"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller", pin = "cs" },
+  { ref = "U2", part = "display-controller-spi", pin = "dc" },
+  { ref = "U5", part = "nor-flash-spi" },
+]
+lines.reset = { length = "5 cm", capacitance = "1 pF/cm" }
+""")
+    err = got.value
+    assert err.field == "bus[0].devices[2]" and err.line == 11
+    assert "U5" in str(err) and "pin = " in str(err) and "cs" in str(err)
+
+
+def test_a_gpio_controller_on_no_line_is_noted(tmp_path):
+    # every bus names a controller; on a GPIO bus it may stand apart from the line (an
+    # interrupt between two other parts), which the notes say
+    d = _builtin_design(tmp_path, """[[bus]]
+id = "irq"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U4", part = "io-expander-i2c", pin = "int" },
+  { ref = "U2", part = "display-controller-spi", pin = "dc" },
+]
+lines.int = { length = "5 cm", capacitance = "1 pF/cm", pullup = "10 kΩ" }
+""")
+    res = evaluate_bus(d.bus("irq"), d)
+    assert any(n.startswith("U1 (mcu-3v3), the bus's controller, is on none") for n in res.notes)
+
+
+def test_a_push_pull_output_beside_an_open_drain_one_is_contention(tmp_path):
+    # a reset line driven push-pull by U1 and pulled low by an open-drain output (invented,
+    # built-in classes): U1 driving high while U4 sinks shorts the two, as two push-pull
+    # outputs would; only the second case warned
+    d = _builtin_design(tmp_path, """[[bus]]
+id = "rst"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller", pin = "cs" },
+  { ref = "U4", part = "io-expander-i2c", pin = "int" },
+  { ref = "U2", part = "display-controller-spi", pin = "dc" },
+]
+lines.reset = { length = "5 cm", capacitance = "1 pF/cm", pullup = "10 kΩ" }
+""")
+    (ln,) = evaluate_bus(d.bus("rst"), d).lines
+    c = ln.check("contention")
+    assert c is not None and c.status == "warn"
+    assert "U1.cs" in c.message and "U4.int" in c.message
+    assert "common practice, no source" in c.source

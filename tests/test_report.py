@@ -309,6 +309,31 @@ def test_a_bus_that_warns_on_a_margin_in_seconds_alone_names_it_as_its_worst():
     assert "worst margin +5 % (Edge time)" in bus_line(bus)
 
 
+def test_a_bus_that_fails_on_a_check_without_a_margin_names_it_not_a_passing_one():
+    # invented GPIO reset line whose open-drain driver has no pull-up: its yes/no
+    # pull-up check fails (no margin) while supply checks pass; the bus line read
+    # "FAIL reset (GPIO): worst margin +4 % (Supply range U2)", naming a passing check
+    from pinlib.model.result import BusResult, Check, LineResult
+
+    bus = BusResult(id="reset", protocol="gpio")
+    bus.add(Check("supply-range", "pass", 1.71, 1.65, "V", 0.04, "datasheet", "ok",
+                  subject="U2"))
+    ln = LineResult(signal="reset")
+    ln.add(Check("pull-up", "fail", None, None, "", None, "common practice, no source",
+                 "never rises", subject="U10"))
+    bus.lines.append(ln)
+    line = bus_line(bus)
+    assert "Supply range" not in line and "+4 %" not in line, line
+    assert "failing check Pull up (RESET U10)" in line, line
+    # a warning without a margin is named the same way beside passing margins
+    ln.checks[0] = Check("contention", "warn", 2, 1, "", None, "common practice, no source",
+                         "two drivers")
+    assert "warning check Contention (RESET)" in bus_line(bus)
+    # and a check of the same status with a margin is still named by its margin
+    ln.add(Check("overshoot", "warn", 0.3, 0.3, "V", 0.02, "rule", "high", subject="U2"))
+    assert "worst margin +2 % (Overshoot RESET U2)" in bus_line(bus)
+
+
 def test_a_relation_and_a_sign_stay_with_their_number_and_the_clock_names_its_check(
         monkeypatch, capsys):
     # invented 1 km link: at 80 columns "margin <" ended a line and "-999 %" began the

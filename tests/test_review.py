@@ -577,6 +577,10 @@ def test_gpio_nets(tmp_path):
     assert w.overshoot["rise, Rs 22 Ω"] == line22.figures["overshoot"].value
     irq = plotdata.waveform_data(design.bus("irq"), design, "irq")
     assert irq.driver == "U2" and set(irq.traces) == {"rise, no series R", "fall, no series R"}
+    # the open-drain driver's edge chart is not captioned as a push-pull driver's fit to
+    # datasheet edges (it has none): its rise is the pull-ups', its fall the sink's
+    assert text.count("fitted to its datasheet edges") == 1  # the reset driver's alone
+    assert "U2.irq is open-drain: the rise through the line's pull-ups" in html.unescape(text)
 
 
 def test_svg_ids_are_made_unique():

@@ -324,7 +324,18 @@ def _table(bus, design, chosen, tables, span, floor, distinct, progress):
 
 
 def _table_note(bus: Bus, grid) -> str:
-    axes = ", ".join(f"{ax.kind} factor {ax.lo:.3g}–{ax.hi:.3g}" for ax in grid.axes)
+    # an axis is named by its kind; two of one kind (a rail and a device's own rail) by
+    # the parameters each sets as well, so that they read apart
+    kinds = [ax.kind for ax in grid.axes]
+    names = ({spec[-1]: spec[0] for spec in parameter_specs(bus)}
+             if len(set(kinds)) < len(kinds) else {})
+
+    def axis_name(ax) -> str:
+        if kinds.count(ax.kind) < 2:
+            return f"{ax.kind} factor"
+        return f"{ax.kind} factor of " + ", ".join(names.get(k, str(k)) for k in ax.keys)
+
+    axes = ", ".join(f"{axis_name(ax)} {ax.lo:.3g}–{ax.hi:.3g}" for ax in grid.axes)
     # the largest difference of a relative margin, in percentage points; under 0.001 the
     # bound itself (never an exponent)
     points = max(float(grid.max_error) * 100.0, 0.001)

@@ -16,9 +16,9 @@ Which pin of a device sits on a GPIO line: the device's ``pin`` (when the bus ha
 line, or the pin is named like the line), else the pin named like the line, else on a
 one-line bus the part's only ``gpio`` pin.  Pins that drive (push-pull or open-drain)
 are drivers, evaluated in turn; inputs are receivers.  An open-drain net rises through
-the pull-ups that parts on it carry (``pullup``, or ``pullup_internal`` of a device
-with ``internal_pullups = true``); the design format has no pull-up of its own on a
-GPIO line.
+the line's own ``pullup`` (a resistor to the bus supply) and the pull-ups that parts on
+it carry (``pullup``, or ``pullup_internal`` of a device with ``internal_pullups =
+true``), in parallel.
 """
 
 from __future__ import annotations
@@ -27,6 +27,7 @@ from dataclasses import replace
 
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError
+from pinlib.core.tomlfile import dotted
 from pinlib.engines.ppsupply import supply_checks, supply_rows
 from pinlib.engines.pushline import Endpoint, LineInputs, device_supply
 from pinlib.engines.spi import evaluate_spi, spi_line_inputs
@@ -132,10 +133,13 @@ def gpio_line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
         drivers = [e for e in eps if e.drives]
         receivers = [e for e in eps if e.pin.drive == "input"]
         if not drivers:
-            raise DesignError(M.NO_DRIVER_ON_LINE,
-                              field=f"bus.{bus.id}.lines.{sig}",
+            err = DesignError(M.NO_DRIVER_ON_LINE, field=dotted(line.loc) or f"lines.{sig}",
                               hint="give each device's pin (pin = \"NAME\") or use parts with "
                                    "a push-pull or open-drain pin of that name")
+            err.loc = line.loc  # the line's own place in the file (the dispatcher's line)
+            raise err
+        if line.pullup is not None:  # to the bus rail, as varied on this board
+            line = replace(line, pullup_rail=float(bus.supply))
         out.append(LineInputs(sig, line, tuple(drivers), tuple(eps), tuple(receivers),
                               clock=bus.clock, clock_line=False,
                               warn_margin=design.warn_margin, bus_id=bus.id))
@@ -189,17 +193,53 @@ def evaluate_gpio(bus: Bus, design: Design, *, analysis: dict | None = None) -> 
     res = BusResult(id=bus.id, protocol=bus.protocol, workings=solved)
     if not bus.lines:
         res.notes.append("no routed lines")
+    for d in bus.devices:  # the loader refuses a peripheral on no line
+        if d.is_controller and bus.lines and all(
+                gpio_pin(d, sig, len(bus.lines)) is None for sig in bus.lines):
+            res.notes.append(f"{d.ref} ({d.part_id}), the bus's controller, is on none of "
+                             "its lines (no pin named like a line, no single gpio pin, no "
+                             "pin key): nothing is checked at it")
     for sig, la in solved.items():
         result = replace(la.result, checks=list(la.result.checks))
         pp = [e for e in la.drivers if e.pin.drive == "push-pull"]
-        if len(pp) > 1:
-            result.add(Check("contention", "warn", len(pp), 1, "", None,
-                             "two push-pull outputs on one net must never drive at once "
-                             "(common practice)",
-                             f"{len(pp)} push-pull drivers on {sig}: "
-                             + ", ".join(e.label for e in pp)))
+        od = [e for e in la.drivers if e.pin.drive == "open-drain"]
+        if len(pp) > 1 or (pp and od):
+            # a push-pull output driving high against an open-drain one sinking shorts
+            # them as two push-pull outputs would
+            both = pp + od
+            who = ", ".join(e.label for e in both)
+            kinds = (f"{len(pp)} push-pull drivers" if not od else
+                     f"{len(both)} drivers, {len(pp)} push-pull and {len(od)} open-drain,")
+            result.add(Check("contention", "warn", len(both), 1, "", None,
+                             "a push-pull output must never drive against another output "
+                             "on one net (common practice, no source)",
+                             f"{kinds} on {sig}: {who}",
+                             fix=f"let one of {who} drive at a time (the others "
+                                 "high-impedance), or make them all open-drain with a "
+                                 "pull-up"))
+        _note_unchecked(result, la.receivers)
         res.lines.append(result)
     return res
+
+
+def _note_unchecked(result, receivers) -> None:
+    """A note on a GPIO line where no receiver is checked: none on the line (only its
+    controller, or drivers alone), or inputs that give neither levels nor ``abs_max`` (a
+    connector contact, whose receiver sits beyond it)."""
+    if not receivers:
+        result.notes.append(
+            "no device on the line receives it (no pin of drive \"input\"): its "
+            "edges are worked out, but no level or ringing check is made; list the "
+            "part that receives it, with its pin")
+        return
+    bare = [e.label for e in receivers
+            if all(e.level(n) is None for n in ("v_il", "v_ih", "abs_max"))]
+    if len(bare) == len(receivers):
+        result.notes.append(
+            f"{', '.join(bare)} {'gives' if len(bare) == 1 else 'give'} no input "
+            "levels (v_il, v_ih) or abs_max: no level, overshoot or ringing check is "
+            f"made at {'it' if len(bare) == 1 else 'them'}; a connector passes the line "
+            "on: list the part beyond it, with its pin, on the line")
 
 
 # --------------------------------------------------------------------------- entry

@@ -138,8 +138,29 @@ def _worst(bus: BusResult) -> tuple[Check | None, str | None]:
     return best, where
 
 
+def _worse_without_margin(bus: BusResult, than: Check | None):
+    """The first failing or warning check of a worse status than ``than`` (any, when
+    ``than`` is None) and its line's signal: one :func:`_worst` cannot rank, having no
+    margin (a yes/no pull-up check, a contention warning)."""
+    rank = STATUSES.index(than.status) if than is not None and than.status in STATUSES \
+        else 0
+    for status in ("fail", "warn"):
+        if STATUSES.index(status) <= rank:
+            break
+        for _, signal, c in bus.all_checks():
+            if c.status == status:
+                return c, signal
+    return None, None
+
+
 def _worst_text(bus: BusResult) -> str | None:
     c, signal = _worst(bus)
+    bad, bad_signal = _worse_without_margin(bus, c)
+    if bad is not None:
+        who = " ".join(x for x in (bad_signal.upper() if bad_signal else None, bad.subject)
+                       if x)
+        kind = "failing" if bad.status == "fail" else "warning"
+        return f"{kind} check {check_label(bad.id)}{f' ({who})' if who else ''}"
     if c is None:
         return None
     who = " ".join(x for x in (signal.upper() if signal else None, c.subject) if x)

@@ -142,9 +142,14 @@ def _thresholds(rx: Endpoint) -> tuple[float, float]:
     return v_il, v_ih
 
 
-def _pullups(loads: Sequence[Endpoint], driver: Endpoint) -> tuple[float | None, float]:
-    """Parallel resistance of every pull-up on the net and the rail it pulls to."""
+def _pullups(loads: Sequence[Endpoint], driver: Endpoint,
+             line_pullup: tuple[float, float] | None = None) -> tuple[float | None, float]:
+    """Parallel resistance of every pull-up on the net and the rail it pulls to (the
+    lowest of theirs): the pins' and ``line_pullup``, the line's own resistor and its
+    rail, when it has one."""
     g, rail = 0.0, None
+    if line_pullup is not None:
+        g, rail = 1.0 / line_pullup[0], line_pullup[1]
     for p in list(loads) + [driver]:
         r = None
         if p.pin.pullup is not None:
@@ -305,9 +310,13 @@ def edge_plan(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver,
         rp = float(r_pullup)
         v_lo, v_hi, r_th = _open_drain_levels(driver, loads, model, rs, rp, v_pullup)
         distributed = needs_distributed(stretches, r_th, c_far, long)
-        # The pull-up (>> Z0) charges the line as one capacitance.
-        return EdgePlan((rp, 0.0, c_far, v_lo, v_hi), (r_th, model.t_ramp_fall, c_far, v_hi,
-                                                       v_lo), distributed, False, c_far,
+        # The pull-up (>> Z0) charges the line as one capacitance, the released sink's
+        # own pin with the rest (its c_in is there whether it sinks or not): the load the
+        # plan states; the sink discharges its own pin directly, so the fall loads it
+        # with the others alone.
+        c_rise = c_far + driver.c_in
+        return EdgePlan((rp, 0.0, c_rise, v_lo, v_hi), (r_th, model.t_ramp_fall, c_far, v_hi,
+                                                        v_lo), distributed, False, c_rise,
                         v_lo, v_hi)
     vdd = driver.vdd
     distributed = needs_distributed(stretches, min(model.r_rise, model.r_fall) + rs, c_far,
@@ -377,10 +386,13 @@ def route_case(net: RouteNet, stretches: Sequence[Stretch], driver: Endpoint,
                      r_pullup=r_pullup, v_pullup=v_pullup)
     c_far, distributed, v_lo, v_hi = plan.c_far, plan.distributed, plan.v_low, plan.v_high
     points = {}
+    # an open-drain rise charges the released sink's own pin too, at its point
+    rise_caps = caps if driver.pin.drive != "open-drain" else node_caps(
+        net, {**{p.ref: p.c_in for p in loads}, driver.ref: driver.c_in}, extra_c)
     for edge, (r, ramp, _, v_from, v_to), dist in (
             ("rise", plan.rise, plan.rise_distributed), ("fall", plan.fall, distributed)):
-        points[edge] = tree_edges(net, src, r, ramp, caps, v_from, v_to, distributed=dist,
-                                  edge=edge, keep=keep)
+        points[edge] = tree_edges(net, src, r, ramp, rise_caps if edge == "rise" else caps,
+                                  v_from, v_to, distributed=dist, edge=edge, keep=keep)
     ref = ref_times(driver, model, plan, r_pullup)
     fast = None
     if driver.pin.drive != "open-drain" and model.fast is not None:

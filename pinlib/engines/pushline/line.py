@@ -393,17 +393,28 @@ def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
     stuck = []
     for d in a.drivers:
         if d.pin.drive == "open-drain":
-            rp, rail = _pullups(_others(a.loads, d), d)
+            own = a.line.pullup
+            rp, rail = _pullups(_others(a.loads, d), d,
+                                None if own is None else
+                                (float(own), float(a.line.pullup_rail or d.vdd)))
             if rp is None:
                 res.add(Check("pull-up", "fail", None, None, "Ω", None,
                               "an open-drain line needs a pull-up (common practice)",
-                              f"{d.label} is open-drain and no pin on {a.signal} carries a "
-                              "pull-up: the line never rises", subject=d.ref,
-                              fix="use a part with an on-board pull-up, or enable internal "
-                                  "pull-ups"))
+                              f"{d.label} is open-drain and {a.signal} has no pull-up (no "
+                              "resistor of its own, no pin carrying one): the line never "
+                              "rises", subject=d.ref,
+                              fix=f"give the line a resistor to the bus supply "
+                                  f"(lines.{a.signal}.pullup = \"4.7 kΩ\"), use a part "
+                                  "with an on-board pull-up, or enable internal pull-ups"))
                 stuck.append(d)
                 continue
             pullup[d.ref] = (rp, rail)
+            if own is not None and not any(n.startswith("pull-up:") for n in res.notes):
+                both = "" if abs(rp - float(own)) <= 1e-9 * rp else (
+                    f"; with the pull-ups that parts on the line carry, {format_si(rp, 'Ω')}")
+                to = float(a.line.pullup_rail or d.vdd)
+                res.notes.append(f"pull-up: {format_si(float(own), 'Ω')} to the bus supply "
+                                 f"{format_si(to, 'V')} (lines.{a.signal}.pullup){both}")
             a.models[d.ref] = _open_drain_model(d.pin, d.vdd, rp, res.notes, d.label)
         else:
             a.models[d.ref] = _driver_model(d, res.notes)

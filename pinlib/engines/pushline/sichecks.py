@@ -27,6 +27,9 @@ def _si_checks(a: LineAnalysis, cases: dict, clock: float | None, clock_line: bo
     for p in a.loads:
         checks += _swing_checks(p, table, warn)
     drivers = {d.ref: d for d in a.drivers}
+    # behind a bridging part a device on another rail fails by the model's limit (its
+    # far side is not modelled, and a note says so), not for want of a translator
+    bridged = any(p.device.is_bridge for p in a.loads)
     for rx in a.receivers:
         v_il, v_ih = rx.level("v_il"), rx.level("v_ih")
         if v_il is None or v_ih is None or not v_ih > v_il:
@@ -35,7 +38,7 @@ def _si_checks(a: LineAnalysis, cases: dict, clock: float | None, clock_line: bo
         for ref, c in cases.items():
             if ref != rx.ref:
                 checks += _level_checks(rx, drivers[ref], c, v_il, v_ih, warn,
-                                        named=len(drivers) > 1)
+                                        named=len(drivers) > 1, advise=not bridged)
     if clock and a.net is not None:
         checks += [_edge_check(cases, clock, warn, rx) for rx in a.receivers]
     elif clock:
@@ -43,12 +46,13 @@ def _si_checks(a: LineAnalysis, cases: dict, clock: float | None, clock_line: bo
     return checks
 
 
-def _swing_table(cases: dict) -> tuple[list, np.ndarray, np.ndarray]:
+def _swing_table(cases: dict) -> tuple[list, np.ndarray, np.ndarray, np.ndarray]:
     """Each driver's peak (rise: high level plus overshoot) and dip (fall: undershoot
     minus the low level): one value per driver, or on a route one per driver and node,
     each computed once (a line of N drivers and N pins costs N solves' extremes, not N²
-    edge records). [V]"""
+    edge records); and each driver's settled high level (the same at every node). [V]"""
     refs = list(cases)
+    highs = np.asarray([float(c.v_high) for c in cases.values()], dtype=float)
     peaks, dips = [], []
     for c in cases.values():  # the fast corner's edges, where a driver has one
         if c.points is None:
@@ -59,7 +63,7 @@ def _swing_table(cases: dict) -> tuple[list, np.ndarray, np.ndarray]:
             si = c.si_points
             peaks.append(si["rise"].extremes()[0])
             dips.append(si["fall"].extremes()[1])
-    return refs, np.asarray(peaks, dtype=float), np.asarray(dips, dtype=float)
+    return refs, np.asarray(peaks, dtype=float), np.asarray(dips, dtype=float), highs
 
 
 def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
@@ -68,7 +72,7 @@ def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
     abs_max = p.level("abs_max")
     if abs_max is None:
         return []
-    refs, peaks, dips, net, fast = table
+    refs, peaks, dips, highs, net, fast = table
     if net is None and refs and p.ref not in refs:  # a pin that drives none of the
         own = slice(None)                            # cases: all of them, without a mask
     else:
@@ -90,6 +94,14 @@ def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
     # resistor would go
     mask = np.ones(len(refs), dtype=bool) if isinstance(own, slice) else own
     mine = [r for r, keep in zip(refs, mask, strict=True) if keep]
+    fix = None
+    high = float(highs[own].max())
+    if high - p.vdd > allowed:
+        # the settled level alone breaks the rating: no edge rate or termination mends it
+        fix = (f"the line settles at {_fmt(high, 'V')}, above {p.label}'s abs_max at its "
+               f"{_fmt(p.vdd, 'V')} supply: a series resistor or a slower edge does not "
+               "help; shift the level (a level translator, a divider) or use a receiver "
+               "rated for it")
     by_peak = by_dip = ""
     if len(mine) > 1:
         by_peak = f" while {mine[int(np.argmax(peaks[own]))]} drives"
@@ -100,7 +112,7 @@ def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
             f"peak {_fmt(peak, 'V')} at {p.label}{by_peak} against its abs_max "
             f"{_fmt(abs_max, 'V')} at {_fmt(p.vdd, 'V')}: {_relative(above)} its "
             f"supply, {_fmt(allowed, 'V')} allowed{corner}", warn_margin=warn, subject=p.ref,
-            details={"peak": peak, "abs_max": abs_max, "supply": p.vdd}),
+            fix=fix, details={"peak": peak, "abs_max": abs_max, "supply": p.vdd}),
         # the part format records the upper rating only: the low limit is inferred
         rule_of_thumb(check_max(
             "undershoot", dip, low_allowed, "V", f"{UNDERSHOOT_RULE}; {p.source('abs_max')}",
@@ -198,17 +210,23 @@ def _driver_levels(d: Endpoint, c) -> tuple[float, str, float, str]:
 
 
 def _level_checks(rx: Endpoint, d: Endpoint, c, v_il: float, v_ih: float,
-                  warn: float, named: bool = False) -> list[Check]:
+                  warn: float, named: bool = False, advise: bool = True) -> list[Check]:
     """A driver's VOH/VOL against one receiver's VIH/VIL; ``named``: the line has more
-    than one driver, and the subject names this one (``U3 from U1``)."""
+    than one driver, and the subject names this one (``U3 from U1``); ``advise``: a
+    high level short of VIH across two rails says to shift the level."""
     v_oh, oh_src, v_ol, ol_src = _driver_levels(d, c)
     subject = f"{rx.ref} from {d.ref}" if named else rx.ref
+    fix = None
+    if advise and v_oh < v_ih and rx.vdd > d.vdd:  # two domains: drive cannot mend it
+        fix = (f"{d.label} on its {_fmt(d.vdd, 'V')} rail cannot reach the VIH of "
+               f"{rx.label} on {_fmt(rx.vdd, 'V')}: shift the level (a level translator) "
+               "or use a receiver whose VIH the output meets")
     return [
         check_min(
             "level-high", v_oh, v_ih, "V", rx.source("v_ih"),
             f"{d.label} VOH {_fmt(v_oh, 'V')} against {rx.label} VIH {_fmt(v_ih, 'V')}",
-            warn_margin=warn, subject=subject, details={"driver": d.label,
-                                                        "driver_source": oh_src}),
+            warn_margin=warn, subject=subject, fix=fix,
+            details={"driver": d.label, "driver_source": oh_src}),
         check_max(
             "level-low", v_ol, v_il, "V", rx.source("v_il"),
             f"{d.label} VOL {_fmt(v_ol, 'V')} against {rx.label} VIL {_fmt(v_il, 'V')}",

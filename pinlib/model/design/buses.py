@@ -10,7 +10,7 @@ from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_of
 from pinlib.model.design.objects import Bus, Device, Line, Segment
 from pinlib.model.design.raw import SIGNAL_FUNCTION, SPI_SIGNALS, RawBus
-from pinlib.model.design.route import look_alikes, route_of
+from pinlib.model.design.route import look_alikes, on_line, route_of
 
 #: Older names of the SPI signals still on schematics and in datasheets, and the name a
 #: design gives each (common practice, no source; SDI and SDO are left out: which line
@@ -30,6 +30,7 @@ def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bu
     if not any(d.is_controller for d in all_devices):
         raise err(M.BUS_NEEDS_CONTROLLER, bloc + ("devices",),
                   hint="mark one device role = \"controller\"")
+    _no_device_pin(all_devices, err)
     _check_open_drain_pins(rb, segments, err)
     _check_bridges(segments, err)
     return Bus(rb.id, rb.protocol, mode, rb.clock, segments[0].supply,
@@ -76,6 +77,12 @@ def _segment(rb: RawBus, rs, sloc, si: int, count: int, device, sections, cables
     devices = tuple(device(d, sloc + ("devices", i)) for i, d in enumerate(rs.devices))
     seg_id = rs.id or (rb.id if count == 1 else f"{rb.id}-{si + 1}")
     cab = cables(rs.cables or (rb.cables if rs is not rb else ()), sloc + ("cables",))
+    trace = pick("trace")
+    if trace is not None and trace.pullup is not None:  # a GPIO line's key; here the bus's
+        # (a bus with segments gives no trace of its own: the segment's is at sloc)
+        raise err(M.LINE_PULLUP_NOT_GPIO, sloc + ("trace", "pullup"),
+                  hint="an I2C or SMBus bus (or segment) takes its pull-up as pullup = "
+                       "\"2.2 kΩ\" or \"auto\" beside its trace")
     series = pick("pullup_series", "E24")
     from pinlib.core.eseries import SERIES_NAMES
     if series.upper() not in SERIES_NAMES:
@@ -84,7 +91,7 @@ def _segment(rb: RawBus, rs, sloc, si: int, count: int, device, sections, cables
     return Segment(
         seg_id, supply, pick("supply_tolerance", 0.0), pick("pullup", "auto"),
         pick("pullup_tolerance", 0.01), series.upper(),
-        sections(pick("trace"), sloc + ("trace",)), pick("extra_capacitance", 0.0),
+        sections(trace, sloc + ("trace",)), pick("extra_capacitance", 0.0),
         pick("capacitance_tolerance", 0.0), pick("length_tolerance", 0.0), cab, devices,
         sloc)
 
@@ -135,6 +142,10 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
     if not any(d.is_controller for d in devices):
         raise err(M.BUS_NEEDS_CONTROLLER, bloc + ("devices",),
                   hint="mark one device role = \"controller\"")
+    if rb.protocol == "gpio":
+        _check_gpio_pins(devices, tuple(rb.lines), err)
+    else:
+        _no_device_pin(devices, err)
     lines = {}
     for sig, rt in rb.lines.items():
         loc = bloc + ("lines", sig)
@@ -149,8 +160,11 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
             alike = look_alikes(points, devices, rb.protocol, sig, len(rb.lines), homes)
         else:
             secs, points = sections(rt, loc), ()
+        if rt.pullup is not None and rb.protocol != "gpio":
+            raise err(M.LINE_PULLUP_NOT_GPIO, loc + ("pullup",),
+                      hint="an SPI line is driven push-pull both ways")
         lines[sig] = Line(sig, secs, rt.series_resistor, rt.extra_capacitance, loc, points,
-                          alike)
+                          alike, pullup=rt.pullup)
     if rb.protocol == "spi":
         if rb.clock is None:
             raise err(M.SPI_NEEDS_CLOCK, bloc + ("clock",),
@@ -168,6 +182,50 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
     return Bus(rb.id, rb.protocol, None, rb.clock, rb.supply, rb.supply_tolerance or 0.0, (),
                devices, lines, rb.spi_mode, rb.title, rb.capacitance_tolerance or 0.0,
                rb.length_tolerance or 0.0, bloc)
+
+
+def _no_device_pin(devices, err) -> None:
+    """``pin`` chooses a device's pin on a GPIO line; on another bus nothing reads it
+    (the pins of the bus's functions are used): refused at the device's ``pin``."""
+    for d in devices:
+        if d.pin is not None:
+            raise err(M.DEVICE_PIN_NOT_GPIO, d.loc + ("pin",), value=d.pin,
+                      hint="the bus uses the part's pins of its functions; leave pin out")
+
+
+def _check_gpio_pins(devices, lines: tuple, err) -> None:
+    """Each ``pin`` a device of a GPIO bus names is a pin of its part (of its side, for a
+    bridge), and on a bus of several lines the name of one of them (the rule of
+    :func:`pinlib.engines.pushpull.gpio_pin`; another name would select nothing):
+    refused at the device's ``pin``; and each peripheral is on a line (refused at the
+    device)."""
+    for d in devices:
+        if d.pin is None:
+            continue
+        side = (d.side or "a") if d.is_bridge else None
+        pins = d.part.sides[side].pins if side else d.part.pins
+        if d.pin not in pins:
+            raise err(M.NO_SUCH_PIN, d.loc + ("pin",), value=d.pin,
+                      hint=f"{d.part_id} has pins: " + (", ".join(pins) or "none"))
+        if len(lines) > 1 and d.pin not in lines:
+            raise err(M.GPIO_PIN_NAMES_NO_LINE, d.loc + ("pin",), value=d.pin,
+                      expected="one of the bus's lines: " + ", ".join(lines),
+                      hint="to put a pin of another name on a line, give that line a bus "
+                           "of its own")
+    # a peripheral on no line serves no purpose there (a misspelt or missing pin); the
+    # controller every bus names may stand apart from its lines (the engine notes it)
+    for d in devices:
+        if d.is_controller:
+            continue
+        if lines and not any(on_line(d, "gpio", sig, len(lines)) for sig in lines):
+            side = (d.side or "a") if d.is_bridge else None
+            pins = d.part.sides[side].pins if side else d.part.pins
+            raise err(M.GPIO_DEVICE_ON_NO_LINE, d.loc, value=d.ref,
+                      hint=f"{d.part_id} has no pin named "
+                           + " or ".join(repr(s) for s in lines)
+                           + (" and no single gpio pin" if len(lines) == 1 else "")
+                           + "; give the device its pin (pin = \"NAME\"; pins: "
+                           + (", ".join(pins) or "none") + ")")
 
 
 def _one_part_per_reference(buses, err, fname, index) -> None:

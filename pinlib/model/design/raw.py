@@ -102,6 +102,7 @@ Thickness = _unit("m", 0.0, 1e-3)
 CapPerLength = _unit("F/m", 0.0, 1e-6)
 DelayPerLength = _unit("s/m", 1e-9, 1e-6)
 PullupSetting = _auto_or("Ω", 1e-3, 1e9, words=("auto",))
+Pullup = _unit("Ω", 1e-3, 1e9)
 SeriesSetting = _auto_or("Ω", 0.0, 1e6, words=("auto", "none"))
 
 
@@ -170,6 +171,7 @@ class RawTrace(RawSection):
     length: Length | None = None  # type: ignore[assignment]
     series_resistor: SeriesSetting = "none"  # push-pull lines only
     extra_capacitance: Capacitance = 0.0
+    pullup: Pullup | None = None  # GPIO lines only: a resistor to the bus supply
 
 
 class RawCable(Record):

@@ -2,10 +2,11 @@
 
 from __future__ import annotations
 
+import warnings
 from dataclasses import replace
 
 from pinlib.core import messages as M
-from pinlib.core.errors import InputError
+from pinlib.core.errors import FitWarning, InputError
 from pinlib.core.valueclass import value_class
 from pinlib.physics.driver.fitting import _fmt, fit_driver
 from pinlib.physics.driver.model import (
@@ -183,7 +184,15 @@ def _fitted_edge(which: str, rows, r_given, r_dc):
     loads = [c for c, *_ in rows]
     times = [t for _, t, *_ in rows]
     levels = [lv for _, _, lv, _ in rows]
-    fit = fit_driver(loads, times, levels, r_out=r_given, r_out_dc=r_dc)
+    # rise and fall are fitted apart: each warning of the fit says whose it is
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        fit = fit_driver(loads, times, levels, r_out=r_given, r_out_dc=r_dc)
+    for w in caught:
+        if issubclass(w.category, FitWarning):
+            warnings.warn(f"{which}: {w.message}", FitWarning, stacklevel=3)
+        else:
+            warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
     r_basis = {"fixed-r_out": "given", "least-squares": "fitted",
                "from-levels": "from-levels", "default": "default"}[fit.method]
     return fit, r_basis, [f"{which}: {n}" for n in fit.notes]

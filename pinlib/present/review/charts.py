@@ -70,8 +70,14 @@ def _push_pull_charts(bus, design, result: BusResult, keys, charts):
             routed = la.net is not None
             at = ("at the slowest receiver's own point of the route" if routed
                   else "at the far end")
-            caption = (f"Curves: the driver model of {ref} (a ramp behind r_out, fitted to "
-                       "its datasheet edges) into a lumped load at the pin"
+            drv = la.cases[ref].driver
+            model_text = (
+                f"{drv.label} is open-drain: the rise through the line's pull-ups, the "
+                "fall through its sink (r_out, or v_ol at i_ol)"
+                if drv.pin.drive == "open-drain" else
+                f"the driver model of {ref} (a ramp behind r_out, fitted to its datasheet "
+                "edges)")
+            caption = (f"Curves: {model_text} into a lumped load at the pin"
                        + (f", without and with the {_f(e.rs, 'Ω')} series resistor" if e.rs
                           else "")
                        + ". Diamonds: the part's datasheet points. Cross: the engine's "
