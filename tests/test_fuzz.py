@@ -589,3 +589,91 @@ def test_a_case_that_once_hung_or_raised(tmp_path_factory, make):
     # chain's links included) and its snapshot
     given = tuple(f for f in folder.rglob("*") if f.is_file())
     _contract(run, given + (design_path, part_path), limit=3.0)
+
+
+# ----------------------------------------------------------------------------- IBIS files
+
+_IBIS_ODD = ["NA", "", "nan", "inf", "-inf", "1e308", "-1e308", "1e-400", "0", "-0",
+             "3.3.3", "1e", "x", "1mV", "1V/ns", "99999999999999999999", "-1"]
+
+
+@st.composite
+def damaged_ibis(draw, text: str) -> str:
+    """An IBIS text with one or two kinds of damage: a word of a line replaced (a number
+    by an odd one), a line deleted, doubled or swapped, the text cut short, a stray
+    character."""
+    lines = text.splitlines()
+    for _ in range(draw(st.integers(1, 2))):
+        kind = draw(st.sampled_from(["word", "word", "word", "delete", "double", "swap",
+                                     "cut", "stray"]))
+        if kind == "word" and lines:
+            i = draw(st.integers(0, len(lines) - 1))
+            words = lines[i].split()
+            if words:
+                j = draw(st.integers(0, len(words) - 1))
+                words[j] = draw(st.one_of(st.sampled_from(_IBIS_ODD),
+                                          numbers.map(lambda x: f"{x!r}"),
+                                          st.text(max_size=40)))
+                lines[i] = " ".join(words)
+        elif kind == "delete" and lines:
+            del lines[draw(st.integers(0, len(lines) - 1))]
+        elif kind == "double" and lines:
+            i = draw(st.integers(0, len(lines) - 1))
+            lines.insert(i, lines[i])
+        elif kind == "swap" and len(lines) > 1:
+            i, j = draw(st.integers(0, len(lines) - 1)), draw(st.integers(0, len(lines) - 1))
+            lines[i], lines[j] = lines[j], lines[i]
+        elif kind == "cut":
+            body = "\n".join(lines)
+            lines = body[:draw(st.integers(0, len(body)))].splitlines()
+        elif kind == "stray" and lines:
+            i = draw(st.integers(0, len(lines) - 1))
+            at = draw(st.integers(0, len(lines[i])))
+            ch = draw(st.sampled_from(list("[]|=,.\\\x00\x7f\u00a0\u2028\ufeff")))
+            lines[i] = lines[i][:at] + ch + lines[i][at:]
+    return "\n".join(lines) + "\n"
+
+
+def _ibis_base() -> str:
+    from tests.test_ibis import ibis_text
+
+    return ibis_text(cref="15pF")  # invented model: an I/O buffer with its waveforms
+
+
+def _import_ibis(folder: Path, ibs: Path):
+    """What `pinlib parts import` does with the file, in the API: read it, write the part
+    text of its component (the pull-up and pull-down tables, the waveforms fitted) and
+    load that part as the library would."""
+    from pinlib.engines.ibisdriver import output_corners
+    from pinlib.library import ibis, ibisimport
+    from pinlib.library.loader import load_library
+
+    got = ibis.read_ibis(ibs)
+    text = ibisimport.part_text(got, "DEMO-IO", {"SDA": "spi-sclk"}, "demo-out",
+                                category="controller", outputs=output_corners,
+                                warnings=[])
+    (folder / "parts" / "demo-out.toml").write_text(text, encoding="utf-8")
+    part = load_library([folder / "parts"], builtin=False, env=False,
+                        strict=True).get("demo-out")
+    json.dumps(text)  # a text, whatever the file held
+    return part
+
+
+def test_the_base_ibis_file_imports(tmp_path_factory):
+    folder = tmp_path_factory.mktemp("ibis")
+    (folder / "parts").mkdir()
+    ibs = folder / "invented.ibs"
+    ibs.write_text(_ibis_base(), encoding="utf-8")
+    part = _contract(lambda: _import_ibis(folder, ibs), (ibs,))
+    assert part is not None and part.pins["sclk"].edges
+
+
+@FUZZ
+@given(text=damaged_ibis(_ibis_base()))
+def test_a_damaged_ibis_file_imports_or_gives_an_error_naming_it(tmp_path_factory, text):
+    folder = tmp_path_factory.mktemp("ibis")
+    (folder / "parts").mkdir()
+    ibs = folder / "invented.ibs"
+    ibs.write_text(text, encoding="utf-8", errors="surrogatepass")
+    written = folder / "parts" / "demo-out.toml"
+    _contract(lambda: _import_ibis(folder, ibs), (ibs, written))

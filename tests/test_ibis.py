@@ -448,3 +448,15 @@ def test_import_refuses_the_builtin_library(tmp_path, capsys):
                            "--id", "demo-x", "--into", str(loader.BUILTIN_DIR))
     assert code == 2 and "team folder" in err
     assert not (loader.BUILTIN_DIR / "demo-x.toml").exists()
+
+
+def test_a_row_of_one_column_is_named_in_the_singular():
+    # "1 columns where 4 belong" read wrongly; the message counts what it found
+    lines = ibis_text().splitlines()
+    at = next(i for i, x in enumerate(lines) if x.strip().lower() == "[pulldown]") + 1
+    while not lines[at].strip() or lines[at].lstrip().startswith("|"):
+        at += 1
+    lines[at] = "0.0"
+    with pytest.raises(LibraryError) as got:
+        ibis.parse_ibis("\n".join(lines) + "\n", "invented.ibs")
+    assert "1 column where 4 columns belong" in str(got.value), str(got.value)

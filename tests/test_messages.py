@@ -3269,7 +3269,7 @@ def _(env):
     return _ibis_fails(env, _ibis(lambda t: t.replace("Vinl = 0.8V", "Vinl = NA")))
 
 
-@case("IBIS_WRONG_COLUMNS", M.IBIS_WRONG_COLUMNS.format(found=2, expected=3))
+@case("IBIS_WRONG_COLUMNS", M.IBIS_WRONG_COLUMNS.format(found="2 columns", expected=3))
 def _(env):
     return _ibis_fails(env, _ibis(lambda t: t.replace("R_pkg  0.2  0.1  0.3", "R_pkg 0.2 0.1")))
 

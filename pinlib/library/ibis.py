@@ -211,7 +211,8 @@ class _Where:
 
     def columns(self, cols: list[str], want: int, line: int, keyword: str, what: str):
         if len(cols) != want:
-            raise self.error(M.IBIS_WRONG_COLUMNS.format(found=len(cols), expected=want),
+            found = f"{len(cols)} column" + ("" if len(cols) == 1 else "s")
+            raise self.error(M.IBIS_WRONG_COLUMNS.format(found=found, expected=want),
                              line, keyword, " ".join(cols), what)
 
     def tmm(self, cols: list[str], line: int, keyword: str) -> TypMinMax:
