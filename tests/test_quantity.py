@@ -472,3 +472,12 @@ def test_a_bare_number_is_given_one_example_its_own():
     with pytest.raises(UnitError) as info:
         parse("abc", "m", field="length")
     assert "e.g. '14 cm'" in str(info.value)
+
+
+def test_an_unknown_unit_is_echoed_as_written():
+    # "5 pF pF" said "unknown unit 'pFpF'": the spaces the reader drops to match a unit
+    # ("k Ω") are kept where it echoes one it does not know
+    with pytest.raises(UnitError) as info:
+        parse("5 pF pF", "F", field="pins.sda.c_in")
+    assert "unknown unit 'pF pF'" in str(info.value), str(info.value)
+    assert parse("4.7 k Ω", "Ω") == pytest.approx(4700.0)  # spaces inside still read

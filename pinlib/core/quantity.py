@@ -270,10 +270,11 @@ def _parse_text(text: str, unit: str, field: str | None) -> float:
     if not rest:
         raise _fail(text, unit, field, M.BARE_NUMBER,
                     hint=f"add the unit, e.g. {_with_unit(m.group(1), number, unit, field)}")
+    written = rest.strip()
     rest = rest.replace("·", "").replace(" ", "")
     got = _split_unit(rest)
-    if got is None:
-        raise _fail(text, unit, field, M.UNKNOWN_UNIT.format(unit=rest),
+    if got is None:  # the unit as written ('pF pF', not 'pFpF')
+        raise _fail(text, unit, field, M.UNKNOWN_UNIT.format(unit=written),
                     hint=_unit_hint(text, m.group(1), rest, unit))
     scale, base = got
     if base != unit:
