@@ -118,7 +118,7 @@ class CornersResult:
         rows = [c for c in self.checks if c.corner]
         # the worst status first: a margin in a unit sorts after every fraction, and a
         # failing slack in seconds must not fall among the "more" below passing rows
-        rows.sort(key=lambda c: (-STATUSES.index(c.status),
+        rows.sort(key=lambda c: (-(STATUSES.index(c.status) if c.status in STATUSES else 0),
                                  *margin_order(c.margin, c.margin_unit, -math.inf)))
         shown = rows[:limit] if limit else rows
         if shown:
