@@ -25,7 +25,7 @@ def supply_rows(bus: Bus) -> list[tuple]:
         if d.ref in seen:
             continue
         seen.add(d.ref)
-        sup = d.part.supply_for((d.side or "a") if d.is_bridge else None)
+        sup = d.part.supply_for(d.part_side)
         if sup is None:
             continue
         why = sup.min.source or d.part.provenance.source or "part file"

@@ -31,8 +31,8 @@ from pinlib.core.tomlfile import dotted
 from pinlib.engines.ppsupply import supply_checks, supply_rows
 from pinlib.engines.pushline import Endpoint, LineInputs, device_supply
 from pinlib.engines.spi import evaluate_spi, spi_line_inputs
-from pinlib.library.schema import Pin
-from pinlib.model.design import Bus, Design, Device
+from pinlib.model.design import Bus, Design
+from pinlib.model.design.route import gpio_pin  # the rule of a device's GPIO pin
 from pinlib.model.result import BusResult, Check
 
 __all__ = ["evaluate_bus", "evaluate_board", "evaluate_gpio", "gpio_pin", "supply_checks",
@@ -40,44 +40,6 @@ __all__ = ["evaluate_bus", "evaluate_board", "evaluate_gpio", "gpio_pin", "suppl
 
 
 # --------------------------------------------------------------------------- GPIO
-
-
-def gpio_pin(device: Device, signal: str, n_lines: int) -> tuple[str, Pin] | None:
-    """The pin of a device on a GPIO line (see the module notes for the rule).
-
-    Parameters
-    ----------
-    device : Device
-        A device of the bus. [1]
-    signal : str
-        The line's name. [1]
-    n_lines : int
-        How many lines the bus routes. [1]
-
-    Returns
-    -------
-    tuple of (str, Pin) or None
-        The pin's name and data, or None when the device is not on the line.
-
-    Raises
-    ------
-    DesignError
-        When the device names a pin its part does not have.
-    """
-    side = (device.side or "a") if device.is_bridge else None
-    pins = device.part.sides[side].pins if side else device.part.pins
-    if device.pin is not None and (n_lines == 1 or device.pin == signal):
-        if device.pin not in pins:
-            raise DesignError(M.NO_SUCH_PIN, field="pin",
-                              value=device.pin, hint="pins: " + ", ".join(pins))
-        return device.pin, pins[device.pin]
-    if signal in pins:
-        return signal, pins[signal]
-    if n_lines == 1:
-        gp = [(n, p) for n, p in pins.items() if p.function == "gpio"]
-        if len(gp) == 1:
-            return gp[0]
-    return None
 
 
 def gpio_analyses(bus: Bus, design: Design) -> dict:

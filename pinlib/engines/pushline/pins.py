@@ -85,12 +85,6 @@ class Flight:
     late: float
 
 
-def _side(device: Device) -> str | None:
-    if device.is_bridge:
-        return device.side or "a"
-    return None
-
-
 def device_supply(device: Device, bus: Bus) -> float:
     """The supply a device runs from.
 
@@ -127,7 +121,7 @@ def endpoint(device: Device, function: str, bus: Bus) -> Endpoint | None:
         The pin (side ``a`` of a bridging part unless the device names its side), or
         None when the part has no such pin.
     """
-    got = device.part.pin_for(function, _side(device))
+    got = device.part.pin_for(function, device.part_side)
     if got is None:
         return None
     return Endpoint(device, got[0], got[1], device_supply(device, bus))

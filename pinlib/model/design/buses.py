@@ -196,14 +196,13 @@ def _no_device_pin(devices, err) -> None:
 def _check_gpio_pins(devices, lines: tuple, err) -> None:
     """Each ``pin`` a device of a GPIO bus names is a pin of its part (of its side, for a
     bridge), and on a bus of several lines the name of one of them (the rule of
-    :func:`pinlib.engines.pushpull.gpio_pin`; another name would select nothing):
+    :func:`pinlib.model.design.route.gpio_pin`; another name would select nothing):
     refused at the device's ``pin``; and each peripheral is on a line (refused at the
     device)."""
     for d in devices:
         if d.pin is None:
             continue
-        side = (d.side or "a") if d.is_bridge else None
-        pins = d.part.sides[side].pins if side else d.part.pins
+        pins = d.part_pins
         if d.pin not in pins:
             raise err(M.NO_SUCH_PIN, d.loc + ("pin",), value=d.pin,
                       hint=f"{d.part_id} has pins: " + (", ".join(pins) or "none"))
@@ -218,8 +217,7 @@ def _check_gpio_pins(devices, lines: tuple, err) -> None:
         if d.is_controller:
             continue
         if lines and not any(on_line(d, "gpio", sig, len(lines)) for sig in lines):
-            side = (d.side or "a") if d.is_bridge else None
-            pins = d.part.sides[side].pins if side else d.part.pins
+            pins = d.part_pins
             raise err(M.GPIO_DEVICE_ON_NO_LINE, d.loc, value=d.ref,
                       hint=f"{d.part_id} has no pin named "
                            + " or ".join(repr(s) for s in lines)

@@ -77,6 +77,18 @@ class Device:
     def is_bridge(self) -> bool:
         return bool(self.part.sides)
 
+    @property
+    def part_side(self) -> str | None:
+        """The side of its bridging part the device places (``a`` where the design
+        names none); None for any other part."""
+        return (self.side or "a") if self.is_bridge else None
+
+    @property
+    def part_pins(self) -> dict:
+        """The pins the device places: its side's of a bridging part, else the part's."""
+        side = self.part_side
+        return self.part.sides[side].pins if side else self.part.pins
+
 
 @value_class(frozen=True)
 class Segment:

@@ -7,26 +7,63 @@ import re
 from collections.abc import Callable, Sequence
 
 from pinlib.core import messages as M
+from pinlib.core.errors import DesignError
 from pinlib.core.protocols import SIGNAL_FUNCTION
 from pinlib.core.worklimits import MAX_ROUTE_STRETCHES
+from pinlib.library.schema import Pin
 from pinlib.model.design.objects import Device, Section
 from pinlib.model.design.raw import RawTrace
 
 
 def on_line(device: Device, protocol: str, signal: str, n_lines: int) -> bool:
     """Whether a device of a push-pull bus has a pin on one of its lines: on SPI a pin of
-    the signal's function; on GPIO the rule of :func:`pinlib.engines.pushpull.gpio_pin`
-    (the device's ``pin``, a pin named like the line, or a one-line bus's only gpio pin).
-    """
-    side = (device.side or "a") if device.is_bridge else None
+    the signal's function; on GPIO by :func:`gpio_pin` (a ``pin`` naming one the part
+    lacks puts the device on the line: the loader refuses that pin at the device)."""
     if protocol == "spi":
-        return device.part.pin_for(SIGNAL_FUNCTION[signal], side) is not None
-    pins = device.part.sides[side].pins if side else device.part.pins
+        return device.part.pin_for(SIGNAL_FUNCTION[signal], device.part_side) is not None
+    try:
+        return gpio_pin(device, signal, n_lines) is not None
+    except DesignError:
+        return True
+
+
+def gpio_pin(device: Device, signal: str, n_lines: int) -> tuple[str, Pin] | None:
+    """The pin of a device on a GPIO line: the device's ``pin`` (on a bus of one line,
+    or naming this line), else a pin named like the line, else on a bus of one line
+    the part's only pin of function ``gpio`` (:mod:`pinlib.engines.pushpull` uses it).
+
+    Parameters
+    ----------
+    device : Device
+        A device of the bus. [1]
+    signal : str
+        The line's name. [1]
+    n_lines : int
+        How many lines the bus routes. [1]
+
+    Returns
+    -------
+    tuple of (str, Pin) or None
+        The pin's name and data, or None when the device is not on the line.
+
+    Raises
+    ------
+    DesignError
+        When the device names a pin its part does not have.
+    """
+    pins = device.part_pins
     if device.pin is not None and (n_lines == 1 or device.pin == signal):
-        return True
+        if device.pin not in pins:
+            raise DesignError(M.NO_SUCH_PIN, field="pin",
+                              value=device.pin, hint="pins: " + ", ".join(pins))
+        return device.pin, pins[device.pin]
     if signal in pins:
-        return True
-    return n_lines == 1 and sum(p.function == "gpio" for p in pins.values()) == 1
+        return signal, pins[signal]
+    if n_lines == 1:
+        gp = [(n, p) for n, p in pins.items() if p.function == "gpio"]
+        if len(gp) == 1:
+            return gp[0]
+    return None
 
 
 def _root(parent: dict, x: str) -> str:
