@@ -280,6 +280,29 @@ def _assignments(text: str, name: str) -> list[int]:
             if " = " in line and not line.startswith(("format", "[")) and line not in kept]
 
 
+def _damage_lines(draw, lines: list[str], kind: str, strays: str) -> list[str]:
+    """``lines`` with the damage of ``kind`` done to whole lines (of any file): a line
+    deleted, doubled or swapped with another, the text cut short, or a stray character
+    (one of ``strays``, the file's own syntax, or a control or odd space) put in."""
+    if kind == "delete" and lines:
+        del lines[draw(st.integers(0, len(lines) - 1))]
+    elif kind == "double" and lines:
+        i = draw(st.integers(0, len(lines) - 1))
+        lines.insert(i, lines[i])
+    elif kind == "swap" and len(lines) > 1:
+        i, j = draw(st.integers(0, len(lines) - 1)), draw(st.integers(0, len(lines) - 1))
+        lines[i], lines[j] = lines[j], lines[i]
+    elif kind == "cut":
+        body = "\n".join(lines)
+        lines = body[:draw(st.integers(0, len(body)))].splitlines()
+    elif kind == "stray" and lines:
+        i = draw(st.integers(0, len(lines) - 1))
+        at = draw(st.integers(0, len(lines[i])))
+        ch = draw(st.sampled_from(list(strays + "\\\x00\x7f\u00a0\u2028\ufeff")))
+        lines[i] = lines[i][:at] + ch + lines[i][at:]
+    return lines
+
+
 @st.composite
 def damaged(draw, text: str, name: str) -> str:
     """``text`` with one or two kinds of damage."""
@@ -293,22 +316,8 @@ def damaged(draw, text: str, name: str) -> str:
             key = lines[i].split(" = ", 1)[0]
             value = draw(quantities if kind == "unit" else values)
             lines[i] = f"{key} = {value}"
-        elif kind == "delete" and lines:
-            del lines[draw(st.integers(0, len(lines) - 1))]
-        elif kind == "double" and lines:
-            i = draw(st.integers(0, len(lines) - 1))
-            lines.insert(i, lines[i])
-        elif kind == "swap" and len(lines) > 1:
-            i, j = draw(st.integers(0, len(lines) - 1)), draw(st.integers(0, len(lines) - 1))
-            lines[i], lines[j] = lines[j], lines[i]
-        elif kind == "cut":
-            body = "\n".join(lines)
-            lines = body[:draw(st.integers(0, len(body)))].splitlines()
-        elif kind == "stray" and lines:
-            i = draw(st.integers(0, len(lines) - 1))
-            at = draw(st.integers(0, len(lines[i])))
-            ch = draw(st.sampled_from(list("[]{}=\"'#,.\\\x00\x7f\u00a0\u2028\ufeff")))
-            lines[i] = lines[i][:at] + ch + lines[i][at:]
+        else:
+            lines = _damage_lines(draw, lines, kind, "[]{}=\"'#,.")
     return "\n".join(lines) + "\n"
 
 
@@ -615,22 +624,8 @@ def damaged_ibis(draw, text: str) -> str:
                                           numbers.map(lambda x: f"{x!r}"),
                                           st.text(max_size=40)))
                 lines[i] = " ".join(words)
-        elif kind == "delete" and lines:
-            del lines[draw(st.integers(0, len(lines) - 1))]
-        elif kind == "double" and lines:
-            i = draw(st.integers(0, len(lines) - 1))
-            lines.insert(i, lines[i])
-        elif kind == "swap" and len(lines) > 1:
-            i, j = draw(st.integers(0, len(lines) - 1)), draw(st.integers(0, len(lines) - 1))
-            lines[i], lines[j] = lines[j], lines[i]
-        elif kind == "cut":
-            body = "\n".join(lines)
-            lines = body[:draw(st.integers(0, len(body)))].splitlines()
-        elif kind == "stray" and lines:
-            i = draw(st.integers(0, len(lines) - 1))
-            at = draw(st.integers(0, len(lines[i])))
-            ch = draw(st.sampled_from(list("[]|=,.\\\x00\x7f\u00a0\u2028\ufeff")))
-            lines[i] = lines[i][:at] + ch + lines[i][at:]
+        else:
+            lines = _damage_lines(draw, lines, kind, "[]|=,.")
     return "\n".join(lines) + "\n"
 
 
