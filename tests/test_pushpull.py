@@ -983,6 +983,47 @@ lines.irq = { length = "5 cm", capacitance = "1 pF/cm" }
     assert not ln.check("level-low").fix
 
 
+def test_a_line_inside_the_receivers_rails_shows_no_negative_overshoot(tmp_path):
+    # a 1.8 V output into a 3.3 V part's input (invented, built-in classes) peaks some
+    # 1.5 V below the receiver's supply, and its low level sits above ground: the checks'
+    # values are excursions beyond the rails, so 0 V each and a margin of exactly 100 %,
+    # with the extremes in the message (it read "-1.5 V" and margins above 100 %)
+    d = _builtin_design(tmp_path, """[[bus]]
+id = "irq"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U3", part = "mcu-1v8", role = "controller", pin = "cs", supply = "1.8 V" },
+  { ref = "U1", part = "mcu-3v3", pin = "cipo" },
+]
+lines.irq = { length = "5 cm", capacitance = "1 pF/cm" }
+""")
+    (ln,) = evaluate_bus(d.bus("irq"), d).lines
+    over = next(c for c in ln.checks if c.id == "overshoot" and c.subject == "U1")
+    under = next(c for c in ln.checks if c.id == "undershoot" and c.subject == "U1")
+    for c in (over, under):
+        assert c.value == 0.0 and c.margin == 1.0 and c.status == "pass"
+    assert "below its supply" in over.message and "peak 1." in over.message
+    # a line that does ring above the rail keeps its excursion as the value
+    d2 = _builtin_design(tmp_path, """[[bus]]
+id = "stb"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller", pin = "sclk" },
+  { ref = "U2", part = "display-controller-spi", pin = "dc" },
+]
+
+[bus.lines.stb]
+length = "30 cm"
+capacitance = "1 pF/cm"
+delay = "60 ps/cm"
+""")
+    (ln2,) = evaluate_bus(d2.bus("stb"), d2).lines
+    ring = next(c for c in ln2.checks if c.id == "overshoot" and c.subject == "U2")
+    assert ring.value > 0.05 and ring.value == pytest.approx(ln2.figures["overshoot"].value)
+
+
 def test_a_line_pull_up_is_named_in_the_notes_with_its_rail(tmp_path):
     # where the rise comes from: the line's own resistor, its rail, and what parts add
     d = _builtin_design(tmp_path, _OD_RESET.format(extra=', pullup = "10 kΩ"'))

@@ -88,6 +88,9 @@ def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
     if abs(above) <= 1e-12 * max(abs(peak), 1.0):
         above = 0.0  # a settled edge at the supply: the difference is float rounding
     dip = float(dips[own].max())
+    # the checks' values are excursions beyond the rail, none when the line stays inside
+    # it (a driver on a lower rail, a low level above ground); the texts give the extremes
+    over, under = max(above, 0.0), max(dip, 0.0)
     low_allowed = min(allowed, UNDERSHOOT_DEFAULT)
     corner = " (fast corner)" if fast[own].any() else ""
     # with several drivers (CIPO's peripherals) the one whose edge it is: where a series
@@ -108,14 +111,15 @@ def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
         by_dip = f" while {mine[int(np.argmax(dips[own]))]} drives"
     return [
         check_max(
-            "overshoot", above, allowed, "V", p.source("abs_max"),
+            "overshoot", over, allowed, "V", p.source("abs_max"),
             f"peak {_fmt(peak, 'V')} at {p.label}{by_peak} against its abs_max "
             f"{_fmt(abs_max, 'V')} at {_fmt(p.vdd, 'V')}: {_relative(above)} its "
             f"supply, {_fmt(allowed, 'V')} allowed{corner}", warn_margin=warn, subject=p.ref,
             fix=fix, details={"peak": peak, "abs_max": abs_max, "supply": p.vdd}),
         # the part format records the upper rating only: the low limit is inferred
         rule_of_thumb(check_max(
-            "undershoot", dip, low_allowed, "V", f"{UNDERSHOOT_RULE}; {p.source('abs_max')}",
+            "undershoot", under, low_allowed, "V",
+            f"{UNDERSHOOT_RULE}; {p.source('abs_max')}",
             f"dip to {_fmt(-dip, 'V')} at {p.label}{by_dip}; {_fmt(low_allowed, 'V')} below "
             f"ground allowed{corner}", warn_margin=warn, subject=p.ref)),
     ]
