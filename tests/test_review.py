@@ -340,6 +340,22 @@ def test_render_functions(demo):
     assert "## Monte Carlo" in md and md.count("data:image/svg+xml") == 26
 
 
+def test_raw_samples_that_differ_by_rounding_alone_do_not_vary():
+    # a level check whose value follows one rail reads 0.42857142857142855 on one board
+    # and ...87 on the next (derived: float rounding); such rows are not "varying" in the
+    # report, as McCheck's rows are not (sensitivity.beyond_rounding)
+    from pinlib.present.review.montecarlo import _mc_rows
+
+    base = 3.0 / 7.0
+    flat = np.array([base, np.nextafter(base, 1.0), base])
+    moving = np.array([base, base * 1.01, base])
+    mc = {"n": 3, "seed": 1, "checks": [
+        {"path": "b", "id": "level-high", "subject": "U1", "samples": s, "limit": 0.5,
+         "unit": "V", "kind": "max", "pass_fraction": 1.0, "ci": (0.3, 1.0)}
+        for s in (flat, moving)]}
+    assert [r["varies"] for r in _mc_rows(mc)] == [False, True]
+
+
 def _monte_carlo_result() -> dict:
     """A small Monte Carlo run of one rise-time check, computed here: Rp uniform within
     ±5 % of 2.7 kΩ and Cb within ±20 % of 105 pF (the demo's main segment), rise

@@ -7,6 +7,7 @@ from __future__ import annotations
 from pinlib.core.labels import check_label, sampled_check_label
 from pinlib.model.result import margin_order, signed_margin_text
 from pinlib.present.review.draw import _draw
+from pinlib.studies.whatif.sensitivity import beyond_rounding
 from pinlib.studies.whatif.yields import percent_text
 
 
@@ -82,7 +83,8 @@ def _mc_rows(mc) -> list[dict]:
             "unit": _get(entry, "unit", "") or "", "kind": _get(entry, "kind", "max") or "max",
             "label": _get(entry, "label") or _get(entry, "id", "check"),
             "fraction": None if frac is None else float(frac), "ci": _get(entry, "ci"),
-            "count": "", "varies": bool(finite.size and finite.max() > finite.min()),
+            "count": "",
+            "varies": bool(finite.size and beyond_rounding(finite.min(), finite.max())),
             "failures": frac is not None and float(frac) < 1.0, "lowest": None,
             "sensitivity": [], "source": _get(entry, "source", "") or ""})
     return rows
