@@ -843,13 +843,14 @@ def test_an_open_drain_gpio_line_takes_a_pull_up_resistor_of_its_own(tmp_path):
     (ln,) = evaluate_bus(d.bus("rst"), d).lines
     assert ln.figures["edge_rise_time"].value == pytest.approx(
         math.log(9.0) * 10e3 * c_total, rel=1e-3)
-    # derived: the high level drops by the two pins' leakage (1 µA each) through 10 kΩ;
-    # the low level is the sink (0.4 V / 3 mA) against 10 kΩ from that level
-    v_high = VDD - 2e-6 * 10e3
+    # derived: the high level drops by the two pins' leakage (1 µA each) through the
+    # resistor at its worst corner, 10 kΩ + 1 % (the default tolerance, as a bus's); the
+    # low level is the sink (0.4 V / 3 mA) against 10 kΩ - 1 % from that corner's level
+    v_high = VDD - 2e-6 * 10.1e3
     assert ln.check("level-high").value == pytest.approx(v_high, rel=1e-9)
-    r_sink = 0.4 / 3e-3
-    assert ln.check("level-low").value == pytest.approx(v_high * r_sink / (r_sink + 10e3),
-                                                        rel=1e-6)
+    r_sink, r_low = 0.4 / 3e-3, 9.9e3
+    assert ln.check("level-low").value == pytest.approx(
+        (VDD - 2e-6 * r_low) * r_sink / (r_sink + r_low), rel=1e-6)
     # without it, the failing pull-up check says how to give one
     d = _builtin_design(tmp_path, _OD_RESET.format(extra=""), name="none.toml")
     (ln,) = evaluate_bus(d.bus("rst"), d).lines
@@ -862,11 +863,60 @@ def test_a_line_pull_up_pulls_to_the_varied_rail(tmp_path):
     d = _builtin_design(tmp_path, _OD_RESET.format(extra=', pullup = "10 kΩ"').replace(
         'supply = "3.3 V"\n', 'supply = "3.3 V"\nsupply_tolerance = "5 %"\n', 1))
     (ln,) = evaluate_bus(d.bus("rst"), d).lines
-    # derived: the level-high check's worst corner is the low rail, 3.135 V less 20 mV
-    assert ln.check("level-high").value == pytest.approx(3.3 * 0.95 - 2e-6 * 10e3, rel=1e-9)
+    # derived: the level-high check's worst corner is the low rail, 3.135 V less the
+    # leakage's 20.2 mV through 10 kΩ + 1 % (the resistor's default tolerance)
+    assert ln.check("level-high").value == pytest.approx(3.3 * 0.95 - 2e-6 * 10.1e3,
+                                                         rel=1e-9)
+
+
+def test_a_line_pull_up_takes_a_tolerance_of_its_own(tmp_path):
+    # lines.<signal>.pullup_tolerance (invented, built-in classes): the corners take the
+    # resistor at its ends, and Monte Carlo draws it as a parameter of its own
+    from pinlib.studies.whatif.tolerances import parameters
+
+    def level_high(extra):
+        d = _builtin_design(tmp_path, _OD_RESET.format(extra=extra), name="t.toml")
+        (ln,) = evaluate_bus(d.bus("rst"), d).lines
+        return d, ln.check("level-high").value
+
+    # derived: 3.3 V less the two pins' 2 µA through 10 kΩ + 5 %, and through 10 kΩ
+    _, v5 = level_high(', pullup = "10 kΩ", pullup_tolerance = "5 %"')
+    assert v5 == pytest.approx(VDD - 2e-6 * 10.5e3, rel=1e-9)
+    d, v0 = level_high(', pullup = "10 kΩ", pullup_tolerance = "0 %"')
+    assert v0 == pytest.approx(VDD - 2e-6 * 10e3, rel=1e-9)
+    assert not [p for p in parameters(d) if p.kind == "pullup"]
+    d, _ = level_high(', pullup = "10 kΩ", pullup_tolerance = "5 %"')
+    (p,) = [p for p in parameters(d) if p.kind == "pullup"]
+    assert p.name == "rst reset pull-up" and p.nominal == 10e3 and p.tolerance == 0.05
+    # Monte Carlo draws it (through the table of the engine over the tolerance box,
+    # which had no axis of that kind): the high level's lowest margin lies between the
+    # corners' (derived: the margin falls as the resistor's leakage drop grows)
+    from pinlib.studies.whatif.montecarlo import monte_carlo
+
+    mc = monte_carlo(d, 400, seed=3)
+    assert [q.name for q in mc.parameters] == ["rst reset pull-up"]
+    hi = mc.find("rst", "level-high", "reset")
+    worst = (v5 - 2.31) / 2.31  # derived: over VIH, 0.7 VDD of the display class
+    assert hi.passes.passes == 400 and hi.low == pytest.approx(worst, abs=2e-4)
+    assert hi.sensitivity and hi.sensitivity[0][0] == "rst reset pull-up"
+    # a tolerance for no resistor is refused where it is written
+    with pytest.raises(DesignError) as got:
+        _builtin_design(tmp_path, _OD_RESET.format(extra=', pullup_tolerance = "5 %"'),
+                        name="alone.toml")
+    assert got.value.field == "bus[0].lines.reset.pullup_tolerance"
+    assert "needs the line's pullup" in str(got.value)
 
 
 @pytest.mark.parametrize("body, field", [
+    ("""[[bus]]
+id = "s"
+protocol = "spi"
+clock = "1 MHz"
+supply = "3.3 V"
+devices = [{ ref = "U1", part = "mcu-3v3", role = "controller" },
+           { ref = "U2", part = "nor-flash-spi" }]
+lines.sclk = { length = "5 cm", capacitance = "1 pF/cm", pullup_tolerance = "5 %" }
+""", "bus[0].lines.sclk.pullup_tolerance"),
     ("""[[bus]]
 id = "s"
 protocol = "spi"

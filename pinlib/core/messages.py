@@ -243,6 +243,7 @@ BRIDGE_IN_TWO_SEGMENTS = "a bridging part must appear in two segments, once per 
 BUS_HAS_NO_SEGMENTS = "a {protocol} bus has no segments"
 BUS_HAS_NO_KEY = "a {protocol} bus has no {key}"
 LINE_PULLUP_NOT_GPIO = "only a GPIO line takes a pullup"
+LINE_PULLUP_TOLERANCE_ALONE = "a pullup_tolerance needs the line's pullup"
 DEVICE_PIN_NOT_GPIO = "only a device on a GPIO bus takes a pin"
 GPIO_DEVICE_ON_NO_LINE = "the device is on no line of its GPIO bus"
 GPIO_PIN_NAMES_NO_LINE = "on a GPIO bus of several lines a device's pin names the line it is on"

@@ -79,8 +79,9 @@ __all__ = ["MARGIN_TOL", "VERIFY", "Axis", "LineTable", "Refusal", "axes_of", "t
 MARGIN_TOL = 2e-3
 #: Boards drawn inside the box (fixed seed) at which the table is checked against the engine.
 VERIFY = 20
-#: Nodes per axis, by kind: the length axis moves delays and reflections the most.
-NODES = {"length": 7, "capacitance": 5, "supply": 3}
+#: Nodes per axis, by kind: the length axis moves delays and reflections the most; a GPIO
+#: line's pull-up moves its levels and its rise almost in proportion.
+NODES = {"length": 7, "capacitance": 5, "supply": 3, "pullup": 3}
 
 
 @value_class(frozen=True)
@@ -105,9 +106,9 @@ REFINE, ROUGH_TOL = 8, 2e-3
 class Axis:
     """One axis of the table: the factor keys it sets and the span it covers.
 
-    ``kind`` is ``"length"``, ``"capacitance"`` or ``"supply"``; a line's length or
-    extra-capacitance axis sets the key of every line at once (``keys``), a rail's or a
-    device's axis its one key.
+    ``kind`` is ``"length"``, ``"capacitance"``, ``"supply"`` or ``"pullup"``; a line's
+    length, extra-capacitance or pull-up axis sets the key of every line at once
+    (``keys``), a rail's or a device's axis its one key.
     """
 
     kind: str

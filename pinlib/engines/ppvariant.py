@@ -72,13 +72,17 @@ def parameter_specs(bus: Bus) -> list[tuple]:
         if ctol > 0 and line.extra_capacitance > 0:
             add(f"{bus.id} {sig} extra capacitance", "capacitance", 1.0, ctol, "",
                 ("line-extra", bus.id, sig))
+        if line.pullup is not None and line.pullup_tolerance:
+            add(f"{bus.id} {sig} pull-up", "pullup", float(line.pullup),
+                line.pullup_tolerance, "Ω", ("line-pullup", bus.id, sig))
     return out
 
 
 def line_of_key(key: tuple) -> str | None:
     """The line a parameter key of :func:`parameter_specs` belongs to (its length or
-    extra capacitance), or None for one every line shares (a rail, a device's pins)."""
-    return key[2] if key[0] in ("line-length", "line-extra") else None
+    extra capacitance, a GPIO line's pull-up), or None for one every line shares (a rail,
+    a device's pins)."""
+    return key[2] if key[0] in ("line-length", "line-extra", "line-pullup") else None
 
 
 def chosen_resistors(nominal) -> dict[str, float]:
@@ -119,8 +123,8 @@ def vary_bus(bus: Bus, factor, resistors: dict[str, float] | None = None) -> Bus
     Returns
     -------
     Bus
-        A copy with its supplies, line lengths, extra capacitances and device pin
-        capacitances multiplied. [1]
+        A copy with its supplies, line lengths, extra capacitances, GPIO line pull-ups
+        and device pin capacitances multiplied. [1]
     """
     resistors = resistors or {}
     vtol = bus.supply_tolerance or 0.0
@@ -142,11 +146,14 @@ def vary_bus(bus: Bus, factor, resistors: dict[str, float] | None = None) -> Bus
     for sig, line in bus.lines.items():
         fl = factor(("line-length", bus.id, sig))
         fc = factor(("line-extra", bus.id, sig))
+        fp = factor(("line-pullup", bus.id, sig))
         if fl is not None:
             line = replace(line, sections=tuple(replace(s, length=s.length * fl)
                                                 for s in line.sections))
         if fc is not None:
             line = replace(line, extra_capacitance=line.extra_capacitance * fc)
+        if fp is not None and line.pullup is not None:
+            line = replace(line, pullup=line.pullup * fp)
         if line.series_resistor == "auto" and sig in resistors:
             rs = resistors[sig]
             line = replace(line, series_resistor=rs if rs > 0 else "none")

@@ -8,7 +8,7 @@ from pinlib.core import protocols
 from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_of
-from pinlib.model.design.objects import Bus, Device, Line, Segment
+from pinlib.model.design.objects import PULLUP_TOLERANCE, Bus, Device, Line, Segment
 from pinlib.model.design.raw import SIGNAL_FUNCTION, SPI_SIGNALS, RawBus
 from pinlib.model.design.route import look_alikes, on_line, route_of
 
@@ -78,9 +78,12 @@ def _segment(rb: RawBus, rs, sloc, si: int, count: int, device, sections, cables
     seg_id = rs.id or (rb.id if count == 1 else f"{rb.id}-{si + 1}")
     cab = cables(rs.cables or (rb.cables if rs is not rb else ()), sloc + ("cables",))
     trace = pick("trace")
-    if trace is not None and trace.pullup is not None:  # a GPIO line's key; here the bus's
+    own = None if trace is None else ("pullup" if trace.pullup is not None else
+                                      "pullup_tolerance" if trace.pullup_tolerance is not None
+                                      else None)
+    if own:  # a GPIO line's key; here the bus's
         # (a bus with segments gives no trace of its own: the segment's is at sloc)
-        raise err(M.LINE_PULLUP_NOT_GPIO, sloc + ("trace", "pullup"),
+        raise err(M.LINE_PULLUP_NOT_GPIO, sloc + ("trace", own),
                   hint="an I2C or SMBus bus (or segment) takes its pull-up as pullup = "
                        "\"2.2 kΩ\" or \"auto\" beside its trace")
     series = pick("pullup_series", "E24")
@@ -90,7 +93,7 @@ def _segment(rb: RawBus, rs, sloc, si: int, count: int, device, sections, cables
                   expected="one of " + ", ".join(SERIES_NAMES))
     return Segment(
         seg_id, supply, pick("supply_tolerance", 0.0), pick("pullup", "auto"),
-        pick("pullup_tolerance", 0.01), series.upper(),
+        pick("pullup_tolerance", PULLUP_TOLERANCE), series.upper(),
         sections(trace, sloc + ("trace",)), pick("extra_capacitance", 0.0),
         pick("capacitance_tolerance", 0.0), pick("length_tolerance", 0.0), cab, devices,
         sloc)
@@ -160,11 +163,18 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
             alike = look_alikes(points, devices, rb.protocol, sig, len(rb.lines), homes)
         else:
             secs, points = sections(rt, loc), ()
-        if rt.pullup is not None and rb.protocol != "gpio":
-            raise err(M.LINE_PULLUP_NOT_GPIO, loc + ("pullup",),
-                      hint="an SPI line is driven push-pull both ways")
+        for key in ("pullup", "pullup_tolerance"):
+            if getattr(rt, key) is not None and rb.protocol != "gpio":
+                raise err(M.LINE_PULLUP_NOT_GPIO, loc + (key,),
+                          hint="an SPI line is driven push-pull both ways")
+        if rt.pullup_tolerance is not None and rt.pullup is None:
+            raise err(M.LINE_PULLUP_TOLERANCE_ALONE, loc + ("pullup_tolerance",),
+                      expected='pullup = "10 kΩ" beside it, or no pullup_tolerance')
         lines[sig] = Line(sig, secs, rt.series_resistor, rt.extra_capacitance, loc, points,
-                          alike, pullup=rt.pullup)
+                          alike, pullup=rt.pullup,
+                          pullup_tolerance=(None if rt.pullup is None else
+                                            PULLUP_TOLERANCE if rt.pullup_tolerance is None
+                                            else rt.pullup_tolerance))
     if rb.protocol == "spi":
         if rb.clock is None:
             raise err(M.SPI_NEEDS_CLOCK, bloc + ("clock",),

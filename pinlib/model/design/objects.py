@@ -8,6 +8,10 @@ from dataclasses import field
 from pinlib.core.valueclass import value_class
 from pinlib.library.schema import Part
 
+#: ± of a pull-up resistor a design gives no ``pullup_tolerance`` for (a bus's, a
+#: segment's, a GPIO line's): the common 1 % thick-film part. [1]
+PULLUP_TOLERANCE = 0.01
+
 
 @value_class(frozen=True)
 class Geometry:
@@ -132,6 +136,9 @@ class Line:
     # board's rail).
     pullup: float | None = None
     pullup_rail: float | None = None
+    # ± of that resistor (``lines.<signal>.pullup_tolerance``, 1 % unless given), for
+    # corners and Monte Carlo; None without a pull-up
+    pullup_tolerance: float | None = None
 
     @property
     def length(self) -> float:

@@ -172,6 +172,7 @@ class RawTrace(RawSection):
     series_resistor: SeriesSetting = "none"  # push-pull lines only
     extra_capacitance: Capacitance = 0.0
     pullup: Pullup | None = None  # GPIO lines only: a resistor to the bus supply
+    pullup_tolerance: Tolerance | None = None  # GPIO lines only: ± of that resistor
 
 
 class RawCable(Record):
