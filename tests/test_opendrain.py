@@ -225,6 +225,25 @@ def test_smbus_rise_definition(tmp_path):
     assert any("SMBus definition" in n for n in res.notes)
 
 
+def test_smbus_fall_time_runs_from_0p9_vdd(tmp_path):
+    # the SMBus fall time is measured from 0.9·VDD down to VIL,max − 0.15 V = 0.65 V
+    # (product datasheets quoting the SMBus timing table; from memory: SMBus 2.0's note
+    # to its AC table; docs/references.md says why the longer reading is taken)
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+               '{ ref = "U9", part = "t-gauge-smbus" }']
+    res = bus_result(tmp_path, one_bus(protocol="smbus", mode="100k", pullup="2.2 kΩ",
+                                       extra="80 pF", devices=devices))
+    # derived: above its 0.4 V the weaker sink (U1, 3 mA) draws its constant IOL
+    # against the pull-up's (VDD − V)/Rp, so C dV/dt = −(a + V)/Rp with a = IOL·Rp − VDD
+    # and t = Rp·C·ln((a + 0.9·VDD)/(a + 0.65)); Cb 100 pF (the rise test's above)
+    rp, cb, vdd, i_ol = 2200.0, 100e-12, 3.3, 3e-3
+    a = i_ol * rp - vdd
+    t = rp * cb * math.log((a + 0.9 * vdd) / (a + 0.65))
+    assert res.check("fall-time").value == pytest.approx(t, rel=1e-9)
+    assert fig(res, "fall_time") == pytest.approx(t, rel=1e-9)
+    assert any("0.9·VDD" in n for n in res.notes)
+
+
 def test_smbus_rise_factor_at_1v8(tmp_path):
     devices = ['{ ref = "U1", part = "t-target-bare", role = "controller" }',
                '{ ref = "U9", part = "t-target-bare" }']

@@ -105,12 +105,22 @@ class OpenDrainLimits:
         return smbus_std.rise_rc_factor(self._smbus, vdd)
 
     def measuring_levels(self, vdd):
-        """(v_lo, v_hi): the levels rise and fall times are measured between. [V]"""
+        """(v_lo, v_hi): the levels rise times are measured between (fall times:
+        :meth:`fall_levels`). [V]"""
         vdd = np.asarray(vdd, dtype=float)
         if self._smbus is None:
             return 0.3 * vdd, 0.7 * vdd
         lo, hi = smbus_std.rise_points(self._smbus)
         return np.full(vdd.shape, lo), np.full(vdd.shape, hi)
+
+    def fall_levels(self, vdd):
+        """(v_end, v_start): the levels a fall time is measured between, in the order
+        :meth:`measuring_levels` gives (the lower first). [V]"""
+        vdd = np.asarray(vdd, dtype=float)
+        if self._smbus is None:
+            return 0.3 * vdd, 0.7 * vdd
+        lo, start = smbus_std.fall_points(self._smbus, vdd)
+        return np.full(vdd.shape, lo), np.asarray(start, dtype=float)
 
     @property
     def rise_text(self) -> str:
@@ -119,7 +129,7 @@ class OpenDrainLimits:
         lo, hi = smbus_std.rise_points(self._smbus)
         return (f"the SMBus points {lo:.2f} V to {hi:.2f} V (VIL,max − 0.15 V to VIH,min + "
                 f"0.15 V, {smbus_std.SOURCE_AC}): tr = ln((VDD − {lo:.2f})/(VDD − {hi:.2f}))"
-                "·Rp·Cb")
+                f"·Rp·Cb; tf from 0.9·VDD down to {lo:.2f} V")
 
     def tf_min(self, vdd):
         """Minimum fall time at a supply, a float for a float and an array for an array

@@ -7,9 +7,10 @@ specifications) and Table 4 (high-power DC specifications).  Each
 of its class; the low-power levels of Table 3 are the separate
 :data:`SMBUS_LOW_POWER`.
 
-SMBus measures rise and fall times between (VIL,max − 0.15 V) and
-(VIH,min + 0.15 V), i.e. 0.65 V and 1.50 V, not between 30 % and 70 % of VDD as
-I2C does: :func:`rise_points` and :func:`rise_rc_factor`.
+SMBus measures rise times between (VIL,max − 0.15 V) and (VIH,min + 0.15 V), i.e.
+0.65 V and 1.50 V, not between 30 % and 70 % of VDD as I2C does: :func:`rise_points`
+and :func:`rise_rc_factor`.  Fall times run from 0.9·VDD down to (VIL,max − 0.15 V):
+:func:`fall_points` (see its notes on the sources).
 
 All values are SI (s, Hz, F, V, A, Ω).  A field the table leaves blank is
 ``None``.
@@ -39,6 +40,7 @@ __all__ = [
     "SMBUS_LOW_POWER",
     "smbus_class",
     "rise_points",
+    "fall_points",
     "rise_rc_factor",
 ]
 
@@ -48,6 +50,8 @@ SOURCE_HIGH_POWER = "SMBus specification version 3.1, table 4"
 
 #: Offset of the rise/fall measurement points outside VIL,max and VIH,min. [V]
 EDGE_OFFSET = 0.15
+#: Where a fall time starts, as a fraction of VDD. [1]
+FALL_START = 0.9
 
 _META_FIELDS = frozenset({"name", "source_ac", "source_dc", "from_memory", "note"})
 _DC_FIELDS = frozenset(
@@ -80,8 +84,8 @@ class SmbusClass:
         Maximum cumulative clock-low extend time of a target (per message) and of
         a controller (per byte). [s]
     tf_max, tr_max : float
-        Maximum fall and rise times, measured between (VIL,max − 0.15 V) and
-        (VIH,min + 0.15 V). [s]
+        Maximum fall and rise times: a rise measured from (VIL,max − 0.15 V) to
+        (VIH,min + 0.15 V), a fall from 0.9·VDD to (VIL,max − 0.15 V). [s]
     t_spike : float or None
         Width of noise spikes the input filter must suppress (the table's 0–50 ns:
         the upper figure); ``None`` for the 100 kHz class, for which the table
@@ -383,7 +387,8 @@ def _levels(cls) -> SmbusClass | SmbusLowPower:
 
 
 def rise_points(cls) -> tuple[float, float]:
-    """The two voltages between which SMBus rise and fall times are measured.
+    """The two voltages between which SMBus rise times are measured (fall times:
+    :func:`fall_points`).
 
     Parameters
     ----------
@@ -413,6 +418,43 @@ def rise_points(cls) -> tuple[float, float]:
     """
     lv = _levels(cls)
     return lv.v_il_max - EDGE_OFFSET, lv.v_ih_min + EDGE_OFFSET
+
+
+def fall_points(cls, vdd):
+    """The two voltages between which an SMBus fall time is measured.
+
+    Parameters
+    ----------
+    cls : SmbusClass, SmbusLowPower or str
+        A speed class (or its name), or ``"low-power"``. [-]
+    vdd : float or array_like
+        Bus supply. [V]
+
+    Returns
+    -------
+    v_lo : float
+        VIL,max − 0.15 V, where the fall ends. [V]
+    v_start : float or numpy.ndarray
+        0.9·VDD, where it starts. [V]
+
+    Notes
+    -----
+    Product datasheets that reproduce the SMBus timing table quote the fall time
+    from 0.9·VDD to VIL,max − 0.15 V (two of them; a third quotes VIH,min + 0.15 V as
+    its start), and the SMBus specification version 2.0 is recalled to say the same.
+    The document itself was not at hand (docs/references.md): of the two readings
+    this one measures the longer stretch of the edge (2.97 V to 0.65 V at 3.3 V,
+    against 1.50 V to 0.65 V), so a fall-time check is never the more optimistic.
+
+    Examples
+    --------
+    >>> lo, start = fall_points("100k", 3.3)
+    >>> round(lo, 2), round(float(start), 2)
+    (0.65, 2.97)
+    """
+    lv = _levels(cls)
+    start = FALL_START * np.asarray(vdd, dtype=float)
+    return lv.v_il_max - EDGE_OFFSET, start[()] if start.ndim == 0 else start
 
 
 def rise_rc_factor(cls, vdd):

@@ -154,7 +154,7 @@ def fall_bounds(lim, rp_lo, cb, v, drivers, far, segs, signal: str, phys=pu) -> 
         sink-current bound, ``t_of`` the output fall bound (``inf`` where it does not
         hold) or None, ``kind`` and ``why`` of :func:`output_fall`. [s]
     """
-    v_lo, v_hi = lim.measuring_levels(v)
+    v_lo, v_hi = lim.fall_levels(v)
     pairs = [(d, None, d.r_series) for d in drivers]
     pairs += [(d, link, d.r_series + link.r_on)
               for d, link, _, _ in far_drivers(far, segs, signal)]

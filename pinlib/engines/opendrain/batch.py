@@ -200,8 +200,9 @@ def _in_domain(ctx, ln: _Line, v, rp_lo, rp_hi, far) -> bool:
     numbers, and where not, the checked functions raise their own errors (the low
     levels across a pass transistor are always worked out by the checked function)."""
     v_lo, v_hi = ctx.lim.measuring_levels(v)
+    f_lo, f_start = ctx.lim.fall_levels(v)
     at_least_0 = [v, ln.cb, ln.leakage]
-    above_0 = [rp_lo, rp_hi, ln.rise_factor, v_hi - v_lo]
+    above_0 = [rp_lo, rp_hi, ln.rise_factor, v_hi - v_lo, f_start - f_lo]
     for d in ln.drivers:
         at_least_0 += [d.r_sink, d.r_series]
         above_0 += [d.v_ol, d.i_ol]

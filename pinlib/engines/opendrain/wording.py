@@ -372,7 +372,7 @@ def _never_falls(w: Words, bc, up: str, basis: str, c: int, details: dict) -> Ch
     """The fall-time check where its bound is infinite: the driver's guaranteed sink
     cannot pull the line through the fall's lower measuring level against the pull-up,
     so the line never falls and has no fall time (failed, with the reason)."""
-    v_lo = float(w.lim.measuring_levels(float(w.seg_in.vdd[c]))[0])
+    v_lo = float(w.lim.fall_levels(float(w.seg_in.vdd[c]))[0])
     reason = (f"{up} never falls to {_f(v_lo, 'V')}, where its fall time ends: against the "
               "pull-up the driver's guaranteed sink cannot pull the line that low")
     chk = make(bc, w.lim.source_edges, f"{up} has no fall time: {reason} ({basis})",
