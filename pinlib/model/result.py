@@ -165,6 +165,15 @@ def margin_order(m, unit: str | None, missing: float = math.inf) -> tuple[bool, 
     return unit is not None, missing if bad else float(m)
 
 
+def worst_order(check, missing: float = math.inf) -> tuple[int, bool, float]:
+    """A sort key of checks, the worst first: the worst status (a warning check before a
+    passing one of a smaller margin), then :func:`margin_order` (a check without a
+    margin counts as ``missing`` and as relative).  The one order of a bus's worst check
+    in the report and of a candidate's worst margin."""
+    unit = check.margin_unit if check.margin is not None else None
+    return (-STATUS_CODES.get(check.status, 0), *margin_order(check.margin, unit, missing))
+
+
 #: The largest relative margin written as a number, in percent: beyond it a margin reads
 #: as "> +999 %" or "< -999 %" ("-3286574 %" says nothing a reader can use; the value
 #: and the limit shown beside it say by how much, and the JSON keeps the number).

@@ -20,7 +20,15 @@ import math
 import re
 
 from pinlib.core.labels import check_label, humanize, path_label
-from pinlib.model.result import STATUSES, BusResult, Check, DesignResult, figure_text, margin_text
+from pinlib.model.result import (
+    STATUSES,
+    BusResult,
+    Check,
+    DesignResult,
+    figure_text,
+    margin_text,
+    worst_order,
+)
 from pinlib.present.detail import detail_lines
 from pinlib.present.terminal import DEFAULT_WIDTH, status_word, wrap
 from pinlib.present.values import counts, format_value, with_fix
@@ -130,10 +138,8 @@ def _worst(bus: BusResult) -> tuple[Check | None, str | None]:
     for _, signal, c in bus.all_checks():
         if c.margin is None:
             continue
-        m = float(c.margin)
-        k = (-STATUSES.index(c.status) if c.status in STATUSES else 0,
-             c.margin_unit is not None, m)
-        if math.isfinite(m) and (key is None or k < key):
+        k = worst_order(c)
+        if math.isfinite(k[2]) and (key is None or k < key):
             best, where, key = c, signal, k
     return best, where
 

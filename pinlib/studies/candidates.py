@@ -47,7 +47,14 @@ from pinlib.engines import opendrain as od
 from pinlib.engines.opendrain import batch as ob
 from pinlib.library.schema import CATEGORIES, Part
 from pinlib.model.design import Bus, Design, Device
-from pinlib.model.result import STATUSES, BusResult, json_number, signed_margin_text, worst
+from pinlib.model.result import (
+    STATUSES,
+    BusResult,
+    json_number,
+    signed_margin_text,
+    worst,
+    worst_order,
+)
 from pinlib.studies.compare import can_serve, positions
 from pinlib.studies.ppcandidates import batched_note, evaluate_batched
 
@@ -378,10 +385,6 @@ def _bus_rows(places) -> list[dict]:
 # ============================================================================ summaries
 
 
-def _margin_key(m):
-    return -math.inf if m is None or math.isnan(m) else m
-
-
 def _summary_of(results: list[BusResult], places) -> tuple:
     """Status, worst margin, where it is, the figures and the ranked margins, from
     engine results."""
@@ -399,16 +402,15 @@ def _summary_of(results: list[BusResult], places) -> tuple:
             # a margin that does not exist (its check says why) counts as −inf, as in a batch
             if c.margin is None and c.reason is None:
                 continue
-            m = _margin_key(c.margin)
             # a margin in volts (a translator's gate overdrive) is no fraction of a limit:
             # it sets the status, and is the worst only where no check of that status
-            # has a relative margin; it is never ranked against fractions
-            absolute = c.margin_unit is not None and c.margin is not None
+            # has a relative margin; it is never ranked against fractions.  The worst is
+            # a check of the worst status, then of the smallest margin: a warn is set by
+            # a warning check, not by a passing one at a smaller margin
+            key = worst_order(c, missing=-math.inf)
+            _, absolute, m = key
             if not absolute:
                 margins.append(m)
-            # the worst is a check of the worst status, then of the smallest margin: a warn
-            # is set by a warning check, not by a passing one at a smaller margin
-            key = (-_RANK.get(c.status, 0), absolute, m)
             if rank is None or key < rank:
                 rank, best, where = key, m, {"bus": r.id, "segment": seg_id, "line": line,
                                              "id": c.id, "subject": c.subject}
