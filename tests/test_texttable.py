@@ -65,3 +65,19 @@ def test_a_name_never_breaks_even_at_a_narrow_width():
     lines, _ = fit_table(["id", "category", "supply", "pin functions"], NAMED, 40, keep=4)
     assert LONG in lines and "eeprom-i2c" in " ".join(lines)
     assert all(len(ln) <= 40 for ln in lines if ln != LONG)
+
+
+def test_a_name_with_nothing_after_it_leaves_no_blank_line():
+    lines, _ = fit_table(["id"], [[LONG], ["eeprom-i2c"]], 40)
+    assert lines == ["id", LONG, "eeprom-i2c"]
+    lines, _ = fit_table(["#", "part"], [["1", LONG]], 40, keep=2, names=1)
+    assert lines == ["#  part", "1  " + LONG]
+
+
+def test_a_names_column_left_out_changes_nothing_else():
+    # names may point past the kept columns: when it is dropped the rest lays out as usual
+    lines, dropped = fit_table(["a", "b", "id"], [["1", "2", LONG]], 6, keep=2, names=2)
+    assert dropped == ["id"] and lines == ["a  b", "1  2"]
+    # kept, the column is as wide as its header and the name has its own line
+    lines, dropped = fit_table(["a", "b", "id"], [["1", "2", LONG]], 30, keep=2, names=2)
+    assert dropped == [] and lines == ["a  b  id", "1  2  " + LONG]

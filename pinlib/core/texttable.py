@@ -12,11 +12,11 @@ than half the width, the column is as wide as the longest name within half the w
 and a longer name is written whole on a line of its own, the rest of its row on the
 lines under it::
 
-    id             category  supply
-    -------------  --------  ---------
-    adc-i2c        converter 2-5.5 V
+    id             category   supply
+    -------------  ---------  ---------
+    adc-i2c        converter  2-5.5 V
     a-part-whose-id-is-longer-than-half-the-width
-                   memory    1.7-5.5 V
+                   memory     1.7-5.5 V
 """
 
 from __future__ import annotations
@@ -31,7 +31,7 @@ _NARROWEST = 8  # a wrapped column keeps at least this many characters
 
 def fit_table(header: list[str], rows: list[list[str]], width: int | None = None, *,
               keep: int = 1, rule: bool = False,
-              names: int = 0) -> tuple[list[str], list[str]]:
+              names: int | None = 0) -> tuple[list[str], list[str]]:
     """The table's lines, and the names of the columns left out to fit ``width``.
 
     Parameters
@@ -46,7 +46,7 @@ def fit_table(header: list[str], rows: list[list[str]], width: int | None = None
         The first columns that are never dropped. [1]
     rule : bool, optional
         A line of dashes under the header. [1]
-    names : int, optional
+    names : int or None, optional
         The column of the names a row is found by, never broken (one of the first
         ``keep``). [1]
     """
@@ -57,7 +57,10 @@ def fit_table(header: list[str], rows: list[list[str]], width: int | None = None
     def total(which, widths):
         return sum(widths[i] for i in which) + len(_GAP) * (len(which) - 1)
 
-    if width is not None and total(cols, natural) > width and natural[names] > width // 2:
+    if names not in cols:
+        names = None  # no such column: every column wraps
+    if (names is not None and width is not None and total(cols, natural) > width
+            and natural[names] > width // 2):
         # a name longer than half the width goes on a line of its own
         natural[names] = max([len(c[names]) for c in cells if len(c[names]) <= width // 2]
                              or [1])
@@ -78,9 +81,9 @@ def fit_table(header: list[str], rows: list[list[str]], width: int | None = None
             if rest:
                 widest = max(rest, key=lambda i: widths[i])
                 widths[widest] -= 1
-            elif widths[names] > len(header[names]):
+            elif names in cols and widths[names] > len(header[names]):
                 widths[names] -= 1
-            elif widths[0] > _NARROWEST and names != 0:
+            elif widths[0] > _NARROWEST and (names != 0 or names not in cols):
                 widths[0] -= 1
             else:
                 break
@@ -89,13 +92,15 @@ def fit_table(header: list[str], rows: list[list[str]], width: int | None = None
         wrapped = [[row[i]] if i == names else
                    textwrap.wrap(row[i], widths[i], break_long_words=True,
                                  break_on_hyphens=False) or [""] for i in cols]
-        at = cols.index(names)
-        if len(row[names]) > widths[names]:
+        if names in cols and len(row[names]) > widths[names]:
+            at = cols.index(names)
             # the name whole after the first line of the cells before it; the rest of
             # the row under it
             out.append(_GAP.join([w[0].ljust(widths[i]) for w, i in
                                   zip(wrapped[:at], cols[:at], strict=True)] + [row[names]]))
             wrapped = [w[1:] for w in wrapped[:at]] + [[""]] + wrapped[at + 1:]
+            if not any(any(w) for w in wrapped):
+                wrapped = [[] for _ in cols]  # nothing under it: no blank line
         for j in range(max(len(w) for w in wrapped)):
             out.append(_GAP.join((w[j] if j < len(w) else "").ljust(widths[i])
                                  for w, i in zip(wrapped, cols, strict=True)).rstrip())
