@@ -310,6 +310,26 @@ def test_cli_names_a_team_part_left_out_for_its_problem(tmp_path, capsys, monkey
     assert f"{bad}:7, field 'pins.sda.c_in'" in err
 
 
+
+def test_cli_keeps_a_long_part_id_whole_at_80_columns(tmp_path, capsys, monkeypatch):
+    # invented: a team memory part with an id of 60 characters (the format allows 64),
+    # once broken mid-word in the table, so it could not be copied from it
+    long_id = "eeprom-" + "-".join(["two-kilobit"] * 3) + "-write-protect-pin"
+    assert len(long_id) == 60
+    team = tmp_path / "team"
+    team.mkdir()
+    (team / f"{long_id}.toml").write_text(
+        f'format = "pinlib.part/1"\nid = "{long_id}"\ntitle = "t"\ncategory = "memory"\n'
+        'extends = "eeprom-i2c"\n', encoding="utf-8")
+    monkeypatch.setenv("COLUMNS", "80")
+    assert main(["candidates", str(DEMO), "U4", "--category", "memory",
+                 "--library", str(team)]) == 0
+    lines = capsys.readouterr().out.splitlines()
+    assert max(map(len, lines)) <= 80
+    line = next(ln for ln in lines if long_id[:20] in ln)
+    assert line.split() == [line.split()[0], long_id]  # "#  ID", whole on its line
+    assert lines[lines.index(line) + 1].split()[0].startswith("WARN")
+
 def test_cli_exit_codes(tmp_path, capsys):
     assert main(["candidates", str(DEMO), "U99"]) == 2
     assert "no device with this reference" in capsys.readouterr().err

@@ -126,6 +126,22 @@ def test_list_names_the_overrides_when_the_kind_column_does_not_fit(lib, capsys,
     assert "team, overrides built-in" in out and "override a built-in one" not in out
 
 
+
+def test_list_keeps_a_long_id_whole_at_80_columns(lib, capsys, monkeypatch):
+    _, team = lib
+    long_id = "eeprom-" + "-".join(["two-kilobit"] * 3) + "-write-protect-pin-x"  # invented
+    assert 56 <= len(long_id) <= 64  # the part format allows 64 characters
+    (team / "long.toml").write_text(EEPROM.replace('id = "eeprom"', f'id = "{long_id}"'),
+                                    encoding="utf-8")
+    monkeypatch.setenv("COLUMNS", "80")
+    code, out, _ = run(capsys, "parts", "list", "--library", "team")
+    lines = out.splitlines()
+    assert code == 0 and max(map(len, lines)) <= 80
+    assert long_id in lines  # on a line of its own, whole: it can be copied
+    after = lines[lines.index(long_id) + 1]
+    assert after.split()[:3] == ["memory", "1.7-3.6", "V"]
+    assert any(line.startswith("eeprom ") for line in lines)
+
 @pytest.mark.parametrize(("args", "ids"), [
     (["--category", "memory"], ["eeprom", "flash"]),
     (["--function", "spi-sclk"], ["flash"]),

@@ -765,6 +765,30 @@ def test_a_file_saved_with_crlf_keeps_its_line_endings_when_written(tmp_path, te
     assert fresh.read_bytes() == b"a = 1\nb = 2\n"
 
 
+
+def test_a_file_saved_with_a_byte_order_mark_keeps_it_when_written(tmp_path, team, capsys):
+    # A file a Windows editor saved with a UTF-8 byte-order mark is read as if it had
+    # none; `swap --write` and `parts record` write it back as the editor saved it (the
+    # mark, CRLF), atomically as any write.
+    bom = b"\xef\xbb\xbf"
+    design = tmp_path / "design.toml"
+    design.write_bytes(bom + SMALL_I2C.replace("\n", "\r\n").encode("utf-8"))
+    assert main(["swap", str(design), "U2=rtc-i2c", "--write"]) in (0, 1)
+    assert "error" not in capsys.readouterr().err
+    raw = design.read_bytes()
+    assert raw.startswith(bom) and raw.count(bom) == 1 and b'part = "rtc-i2c"' in raw
+    assert raw.count(b"\n") == raw.count(b"\r\n")
+    part = team / "mine.toml"
+    part.write_bytes(bom + part.read_bytes())
+    record_value(load_library([team]), "mine", "sda.c_in", "6 pF", "rev C, table 5")
+    raw = part.read_bytes()
+    assert raw.startswith(bom) and raw.count(bom) == 1 and b'"6 pF"' in raw
+    # derived from the value recorded above
+    assert load_library([team]).parts["mine"].pins["sda"].c_in.value == 6e-12
+    assert sorted(p.name for p in team.iterdir()) == ["mine.toml"]  # no temporary left
+    atomic_write(part, "a = 1\n")  # any writer keeps it
+    assert part.read_bytes() == bom + b"a = 1\n"
+
 # A writer that works through several files: it creates new parts and records values into
 # them and into a shared part, printing each operation once it has completed.
 WRITER = textwrap.dedent("""\

@@ -160,11 +160,19 @@ def _(env):
     return err.message
 
 
-@case("BYTE_ORDER_MARK")
+@case("UTF16_TEXT")
 def _(env):
-    (env.tmp / "bom.toml").write_bytes(b"\xef\xbb\xbfformat = \"pinlib.design/1\"\n")
-    err = _fails(lambda e: load_design(e.tmp / "bom.toml"), env)
-    assert err.line == 1 and "without a byte-order mark" in err.message
+    (env.tmp / "u16.toml").write_bytes('format = "pinlib.design/1"\n'.encode("utf-16"))
+    err = _fails(lambda e: load_design(e.tmp / "u16.toml"), env)
+    assert err.line == 1 and "save the file as UTF-8" in err.message
+    return err
+
+
+@case("NUL_BYTE", M.NUL_BYTE.format(column=2))
+def _(env):
+    (env.tmp / "u16.toml").write_bytes('x = 1\n'.encode("utf-16-le"))  # no byte-order mark
+    err = _fails(lambda e: load_design(e.tmp / "u16.toml"), env)
+    assert err.line == 1
     return err
 
 

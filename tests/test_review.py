@@ -1004,6 +1004,25 @@ def test_user_text_cannot_change_the_structure_of_the_markdown_report(tmp_path):
     assert "Approved: every check passes" in text  # shown as text, not dropped
 
 
+
+def test_markdown_shows_a_title_ending_in_hashes_and_a_path_with_a_pipe_as_written(tmp_path):
+    # CommonMark drops a run of "#" that ends a heading line after a space (its closing
+    # marks): a design or part titled "... #" lost it in its heading.  And a code span
+    # shows a backslash as written: outside a table the design's path "a|b" read "a\|b".
+    title = "Sensor board rev #"  # invented test data
+    md = _injected_report(tmp_path / "a|b", title)
+    lines = md.splitlines()
+    path = (tmp_path / "a|b" / "board.toml").as_posix()
+    assert f"Design file: `{path}`" in lines
+    assert "# Design review: Sensor board rev \\#" in lines
+    assert "### U2: t-evil — Sensor board rev \\#" in lines
+    for line in lines:
+        if re.match(r"#{1,6} ", line):  # an ATX heading: no closing sequence to drop
+            assert not re.search(r"[ \t]#+[ \t]*$", line), line
+    # in a table a pipe inside a code span is escaped, as GFM needs
+    from pinlib.present.review.markdown import _code
+    assert _code("a|b", cell=True) == "`a\\|b`" and _code("a|b") == "`a|b`"
+
 def test_a_budget_with_a_requirement_without_time_is_drawn_without_it():
     # reproducer: a 3.3 V flash answering a 5 V controller (tests/data, invented): CIPO
     # never reaches the controller's VIH, so the CIPO setup time does not exist; the

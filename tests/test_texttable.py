@@ -29,3 +29,55 @@ def test_trailing_columns_are_dropped_then_the_widest_wraps():
 def test_every_cell_survives_a_narrow_width():
     lines, _ = fit_table(["x"], [["abcdefghijklmnopqrstuvwxyz"]], 10)
     assert "".join(ln.strip() for ln in lines[1:]) == "abcdefghijklmnopqrstuvwxyz"
+
+
+# invented test data: ids of the longest kind (the part format allows 64 characters)
+LONG = "level-shifter-bidirectional-auto-direction-sensing-eight-channel"
+NAMED = [[LONG, "memory", "1.7-5.5 V", "i2c-scl, i2c-sda"],
+         ["eeprom-i2c", "memory", "1.7-5.5 V", "i2c-scl, i2c-sda"]]
+
+
+def test_a_name_too_long_for_the_table_is_whole_on_a_line_of_its_own():
+    lines, dropped = fit_table(["id", "category", "supply", "pin functions"], NAMED, 80,
+                               keep=4, rule=True)
+    assert dropped == [] and len(LONG) == 64
+    assert lines[2] == LONG  # whole: a reader copies it from the list
+    rest = lines[3].split("  ")
+    assert lines[3].startswith(" " * len("eeprom-i2c")) and "i2c-scl, i2c-sda" in rest
+    assert lines[4] == "eeprom-i2c  memory    1.7-5.5 V  i2c-scl, i2c-sda"
+    assert all(len(ln) <= 80 for ln in lines)
+    # the other columns keep their words whole rather than shrinking to the name
+    assert len(lines) == 5
+
+
+def test_names_in_a_later_column_are_whole_after_the_cells_before_them():
+    head = ["#", "part", "status", "worst", "set by", "Cb", "tr"]
+    rows = [["1", LONG + " *", "WARN", "+0.0 %", "main Device speed", "105 pF", "242 ns"],
+            ["2", "eeprom-i2c", "PASS", "+12.5 %", "main Rise time", "98 pF", "200 ns"]]
+    lines, _ = fit_table(head, rows, 80, keep=5, names=1)
+    assert lines[1] == "1  " + LONG + " *"
+    assert lines[2].startswith("   " + " " * len("eeprom-i2c") + "  WARN")
+    assert lines[3].startswith("2  eeprom-i2c  PASS")
+    assert all(len(ln) <= 80 for ln in lines)
+
+
+def test_a_name_never_breaks_even_at_a_narrow_width():
+    lines, _ = fit_table(["id", "category", "supply", "pin functions"], NAMED, 40, keep=4)
+    assert LONG in lines and "eeprom-i2c" in " ".join(lines)
+    assert all(len(ln) <= 40 for ln in lines if ln != LONG)
+
+
+def test_a_name_with_nothing_after_it_leaves_no_blank_line():
+    lines, _ = fit_table(["id"], [[LONG], ["eeprom-i2c"]], 40)
+    assert lines == ["id", LONG, "eeprom-i2c"]
+    lines, _ = fit_table(["#", "part"], [["1", LONG]], 40, keep=2, names=1)
+    assert lines == ["#  part", "1  " + LONG]
+
+
+def test_a_names_column_left_out_changes_nothing_else():
+    # names may point past the kept columns: when it is dropped the rest lays out as usual
+    lines, dropped = fit_table(["a", "b", "id"], [["1", "2", LONG]], 6, keep=2, names=2)
+    assert dropped == ["id"] and lines == ["a  b", "1  2"]
+    # kept, the column is as wide as its header and the name has its own line
+    lines, dropped = fit_table(["a", "b", "id"], [["1", "2", LONG]], 30, keep=2, names=2)
+    assert dropped == [] and lines == ["a  b  id", "1  2  " + LONG]

@@ -87,6 +87,28 @@ def test_line_of_falls_back_to_the_enclosing_key():
     assert line_of(index, ("a", "b", "c")) == 1
 
 
+DESIGN = """\
+format = "pinlib.design/1"
+title = "t"
+
+[board.geometry.g]
+kind = "microstrip"
+width = "0.2 mm"
+height = "0.18 mm"
+er = 4.2
+
+[[bus]]
+id = "sensors"
+protocol = "i2c"
+supply = "3.3 V"
+trace = { length = "5 cm", geometry = "g" }
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "eeprom-i2c" },
+]
+"""  # invented test data
+
+
 def _refused(path, **kw):
     from pinlib.core.tomlfile import load
 
@@ -219,19 +241,75 @@ def test_stale_temporaries_of_stopped_writers_are_removed_by_the_next_write(tmp_
     assert not stale.exists() and fresh.exists() and foreign.exists()
 
 
-def test_a_byte_order_mark_is_named_as_such(tmp_path, capsys, monkeypatch):
-    # Once "not valid TOML: Invalid statement (at line 1, column 1)", which shows nothing
-    # wrong in an editor that hides the mark (a design saved by Notepad, say).
+def test_a_byte_order_mark_is_read_as_if_absent(tmp_path, capsys, monkeypatch):
+    # Once refused ("the file starts with a byte-order mark"): Windows editors write one,
+    # so a design saved by Notepad could not be checked until it was saved again.
     from pinlib.cli import main
+    from pinlib.core.tomlfile import load
 
     monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
     design = tmp_path / "board.toml"
-    design.write_bytes(b"\xef\xbb\xbfformat = \"pinlib.design/1\"\r\ntitle = \"t\"\r\n")
-    assert main(["check", str(design)]) == 2
-    err = capsys.readouterr().err
-    assert f"{design}:1: the file starts with a byte-order mark (BOM)" in err
-    assert "save the file as UTF-8 without a byte-order mark" in err
-    assert "Traceback" not in err
+    design.write_bytes(b"\xef\xbb\xbf" + DESIGN.replace("\n", "\r\n").encode("utf-8"))
+    data, text = load(design)
+    assert data["title"] == "t" and not text.startswith("\ufeff") and "\r" not in text
+    assert main(["check", str(design)]) in (0, 1)
+    captured = capsys.readouterr()
+    assert "error" not in captured.err and "sensors" in captured.out
+
+
+@pytest.mark.parametrize(("body", "expected"), [
+    # the parser's column on line 1 (a slip the parser places)
+    (b'title = 6 pF\n', "column 11"),
+    # an encoding error on line 1: the column counted without the mark
+    (b'y = "ab\xff"\n', "byte 0xff at column 8"),
+])
+def test_with_a_byte_order_mark_every_line_and_column_stays_right(tmp_path, body, expected):
+    plain, marked = tmp_path / "plain.toml", tmp_path / "marked.toml"
+    plain.write_bytes(body)
+    marked.write_bytes(b"\xef\xbb\xbf" + body)
+    a, b = _refused(plain), _refused(marked)
+    assert a.line == b.line == 1 and expected in a.message
+    assert b.message.replace(str(marked), str(plain)) == a.message
+
+
+def test_with_a_byte_order_mark_a_field_is_placed_on_its_line(tmp_path, monkeypatch):
+    from pinlib.model.design import load_design
+
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    design = tmp_path / "board.toml"
+    bad = DESIGN.replace('supply = "3.3 V"', 'supply = "3.3 parsecs"')
+    line = bad.splitlines().index('supply = "3.3 parsecs"') + 1  # derived: its line
+    design.write_bytes(b"\xef\xbb\xbf" + bad.encode("utf-8"))
+    with pytest.raises(InputError) as info:
+        load_design(design)
+    assert info.value.line == line and "supply" in info.value.field
+
+
+@pytest.mark.parametrize(("raw", "line", "expected"), [
+    # UTF-16 with its byte-order mark (Windows editors' "Unicode"), either byte order
+    ('format = "pinlib.design/1"\n'.encode("utf-16"), 1, "UTF-16 text"),
+    (b"\xfe\xff" + 'format = "pinlib.design/1"\n'.encode("utf-16-be"), 1, "UTF-16 text"),
+    # without a mark: read as UTF-8 it is valid, every other byte a NUL (once "not valid
+    # TOML: Expected '=' after a key", which says nothing of the encoding)
+    ('x = 1\ntitle = "t"\n'.encode("utf-16-le"), 1, "a NUL byte at column 2"),
+    ('x = 1\ntitle = "t"\n'.encode("utf-16-be"), 1, "a NUL byte at column 1"),
+    (b'x = 1\ny = "a\x00b"\n', 2, "a NUL byte at column 7"),
+    # binary data: a NUL before the first byte that is not UTF-8 is named first
+    (b"\x7fELF\x02\x01\x01\x00\x00\xff\xfe", 1, "a NUL byte at column 8"),
+    (b"\x89PNG\r\n\x1a\n\x00", 1, "not UTF-8 text"),
+])
+def test_utf16_and_binary_files_are_refused_clearly(tmp_path, raw, line, expected):
+    bad = tmp_path / "bad.toml"
+    bad.write_bytes(raw)
+    err = _refused(bad)
+    assert err.line == line and expected in err.message + " " + (err.hint or "")
+    assert "UTF-8" in err.message + " " + (err.hint or "")
+
+
+def test_an_encoding_error_column_counts_characters_as_an_editor_does(tmp_path):
+    bad = tmp_path / "bad.toml"
+    bad.write_bytes('y = "µ'.encode() + b'\xff"\n')  # µ is two bytes
+    assert "byte 0xff at column 7" in _refused(bad).message
 
 
 @pytest.mark.parametrize(("body", "line", "field", "hint"), [

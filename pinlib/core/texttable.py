@@ -5,6 +5,18 @@ table is wider than the width, it drops trailing columns (never the first ``keep
 then wraps the text of the last remaining column inside its cell (and, if that is not
 enough, of the widest); the caller is told
 which columns were dropped, to say so (the JSON output always holds them all).
+
+One column holds the names a row is found by (a part id), which a reader copies: its
+cells are never broken.  When the table does not fit and its longest name takes more
+than half the width, the column is as wide as the longest name within half the width,
+and a longer name is written whole on a line of its own, the rest of its row on the
+lines under it::
+
+    id             category   supply
+    -------------  ---------  ---------
+    adc-i2c        converter  2-5.5 V
+    a-part-whose-id-is-longer-than-half-the-width
+                   memory     1.7-5.5 V
 """
 
 from __future__ import annotations
@@ -18,7 +30,8 @@ _NARROWEST = 8  # a wrapped column keeps at least this many characters
 
 
 def fit_table(header: list[str], rows: list[list[str]], width: int | None = None, *,
-              keep: int = 1, rule: bool = False) -> tuple[list[str], list[str]]:
+              keep: int = 1, rule: bool = False,
+              names: int | None = 0) -> tuple[list[str], list[str]]:
     """The table's lines, and the names of the columns left out to fit ``width``.
 
     Parameters
@@ -33,6 +46,9 @@ def fit_table(header: list[str], rows: list[list[str]], width: int | None = None
         The first columns that are never dropped. [1]
     rule : bool, optional
         A line of dashes under the header. [1]
+    names : int or None, optional
+        The column of the names a row is found by, never broken (one of the first
+        ``keep``). [1]
     """
     cols = list(range(len(header)))
     cells = [list(map(str, header))] + [list(map(str, r)) for r in rows]
@@ -41,6 +57,13 @@ def fit_table(header: list[str], rows: list[list[str]], width: int | None = None
     def total(which, widths):
         return sum(widths[i] for i in which) + len(_GAP) * (len(which) - 1)
 
+    if names not in cols:
+        names = None  # no such column: every column wraps
+    if (names is not None and width is not None and total(cols, natural) > width
+            and natural[names] > width // 2):
+        # a name longer than half the width goes on a line of its own
+        natural[names] = max([len(c[names]) for c in cells if len(c[names]) <= width // 2]
+                             or [1])
     dropped = []
     if width is not None:
         while len(cols) > max(keep, 1) and total(cols, natural) > width:
@@ -52,16 +75,32 @@ def fit_table(header: list[str], rows: list[list[str]], width: int | None = None
         while total(cols, widths) > width and widths[last] > max(_NARROWEST, 24):
             widths[last] -= 1
         while total(cols, widths) > width:
-            # the first column (the name a row is found by) gives way last
-            rest = cols[1:] if any(widths[i] > _NARROWEST for i in cols[1:]) else cols
-            widest = max(rest, key=lambda i: widths[i])
-            if widths[widest] <= _NARROWEST:
+            # the first column and the names give way last; the names by more of them
+            # on lines of their own, never broken
+            rest = [i for i in cols if i not in (0, names) and widths[i] > _NARROWEST]
+            if rest:
+                widest = max(rest, key=lambda i: widths[i])
+                widths[widest] -= 1
+            elif names in cols and widths[names] > len(header[names]):
+                widths[names] -= 1
+            elif widths[0] > _NARROWEST and (names != 0 or names not in cols):
+                widths[0] -= 1
+            else:
                 break
-            widths[widest] -= 1
     out = []
     for k, row in enumerate(cells):
-        wrapped = [textwrap.wrap(row[i], widths[i], break_long_words=True,
+        wrapped = [[row[i]] if i == names else
+                   textwrap.wrap(row[i], widths[i], break_long_words=True,
                                  break_on_hyphens=False) or [""] for i in cols]
+        if names in cols and len(row[names]) > widths[names]:
+            at = cols.index(names)
+            # the name whole after the first line of the cells before it; the rest of
+            # the row under it
+            out.append(_GAP.join([w[0].ljust(widths[i]) for w, i in
+                                  zip(wrapped[:at], cols[:at], strict=True)] + [row[names]]))
+            wrapped = [w[1:] for w in wrapped[:at]] + [[""]] + wrapped[at + 1:]
+            if not any(any(w) for w in wrapped):
+                wrapped = [[] for _ in cols]  # nothing under it: no blank line
         for j in range(max(len(w) for w in wrapped)):
             out.append(_GAP.join((w[j] if j < len(w) else "").ljust(widths[i])
                                  for w, i in zip(wrapped, cols, strict=True)).rstrip())

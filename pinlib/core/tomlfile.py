@@ -34,7 +34,7 @@ except ImportError:  # pragma: no cover - tomli is a dependency; the standard li
     import tomllib
 
 __all__ = ["load", "line_index", "line_of", "dotted", "atomic_write", "refuse_irregular_target",
-           "file_lock"]
+           "file_lock", "BOM", "UTF8_BOM"]
 
 _KEY = r'(?:[A-Za-z0-9_-]+|"[^"]*"|\'[^\']*\')'
 _DOTTED = rf"{_KEY}(?:\s*\.\s*{_KEY})*"
@@ -147,6 +147,11 @@ def line_of(index: dict[tuple, int], path) -> int | None:
     return None
 
 
+#: The UTF-8 byte-order mark, as bytes; read as if absent, kept when a file is rewritten.
+UTF8_BOM = b"\xef\xbb\xbf"
+#: The byte-order mark as text (what ``str.decode`` leaves of it at a text's start).
+BOM = "\ufeff"
+
 #: The largest file :func:`load` reads unless told otherwise (a design of hundreds of
 #: buses is well under 1 MB); the library reads part files under a lower limit.
 MAX_FILE_BYTES = 16 * 2**20
@@ -164,17 +169,24 @@ def load(path: str | os.PathLike, *, error=InputError,
     """
     p = Path(path)
     raw = read_regular(p, error=error, max_bytes=max_bytes)
+    # A UTF-8 byte-order mark (Windows editors write one) is read as if absent, before
+    # anything counts lines and columns; atomic_write keeps it in the file.
+    raw = raw.removeprefix(UTF8_BOM)
+    if raw.startswith((b"\xff\xfe", b"\xfe\xff")):
+        raise error(M.UTF16_TEXT, file=str(p), line=1, hint="save the file as UTF-8")
+    nul = raw.find(b"\x00")  # valid UTF-8, but never in TOML: UTF-16 text or binary
     try:
         text = raw.decode("utf-8")
     except UnicodeDecodeError as exc:
-        line = raw.count(b"\n", 0, exc.start) + 1
-        column = exc.start - (raw.rfind(b"\n", 0, exc.start) + 1) + 1
-        raise error(M.NOT_UTF8, file=str(p), line=line,
-                    hint=M.NOT_UTF8_WHERE.format(byte=f"0x{raw[exc.start]:02x}",
-                                                 column=column)) from None
-    if text.startswith("\ufeff"):  # TOML has none; the parser's "Invalid statement" hid it
-        raise error(M.BYTE_ORDER_MARK, file=str(p), line=1,
-                    hint="save the file as UTF-8 without a byte-order mark")
+        if not 0 <= nul < exc.start:
+            line, column = _place(raw, exc.start)
+            raise error(M.NOT_UTF8, file=str(p), line=line,
+                        hint=M.NOT_UTF8_WHERE.format(byte=f"0x{raw[exc.start]:02x}",
+                                                     column=column)) from None
+    if nul >= 0:
+        line, column = _place(raw, nul)
+        raise error(M.NUL_BYTE.format(column=column), file=str(p), line=line,
+                    hint="save the file as UTF-8 text")
     if "\r" in text:  # as a file opened in text mode reads it
         text = text.replace("\r\n", "\n").replace("\r", "\n")
     try:
@@ -194,6 +206,14 @@ def load(path: str | os.PathLike, *, error=InputError,
                     line=_line_within(line_index(text), deep) or _deep_line(text),
                     field=dotted(deep[:8]) + ("…" if len(deep) > 8 else "")) from None
     return data, text
+
+
+def _place(raw: bytes, at: int) -> tuple[int, int]:
+    """The line and column (1-based, in characters as an editor counts them) of byte
+    ``at`` of ``raw``, whose bytes before it are UTF-8."""
+    start = raw.rfind(b"\n", 0, at) + 1
+    return (raw.count(b"\n", 0, at) + 1,
+            len(raw[start:at].decode("utf-8", errors="replace")) + 1)
 
 
 _KEY_VALUE = re.compile(r"^\s*([A-Za-z0-9_.-]+)\s*=\s*(.*?)\s*$")
@@ -455,16 +475,18 @@ def refuse_irregular_target(path: str | os.PathLike, hint: str | None = None) ->
                          hint="make it writable first (chmod u+w)")
 
 
-def _line_ending(path: Path) -> str:
-    """``"\r\n"`` when the file at ``path`` ends its first line so (a file saved on
-    Windows), else ``"\n"`` (also for a new file or one that cannot be read)."""
+def _saved_form(path: Path) -> tuple[str, bool]:
+    """How the file at ``path`` was saved: its line ending, ``"\r\n"`` when it ends its
+    first line so (a file saved on Windows), else ``"\n"``; and whether it starts with
+    a UTF-8 byte-order mark.  A new file or one that cannot be read: ``("\n", False)``."""
     try:
         with open(path, "rb") as fh:
             head = fh.read(64 * 1024)
     except OSError:
-        return "\n"
+        return "\n", False
     end = head.find(b"\n")
-    return "\r\n" if end > 0 and head[end - 1:end] == b"\r" else "\n"
+    return ("\r\n" if end > 0 and head[end - 1:end] == b"\r" else "\n",
+            head.startswith(UTF8_BOM))
 
 
 def atomic_write(path: str | os.PathLike, text: str) -> None:
@@ -472,7 +494,8 @@ def atomic_write(path: str | os.PathLike, text: str) -> None:
 
     When ``path`` is a link, the file it leads to is replaced (the link stays).  A path
     that is not a regular file (a folder, a device, a pipe) is refused, never replaced.
-    A file whose lines end in CRLF keeps them (its text is read with LF).  Stale
+    A file whose lines end in CRLF keeps them (its text is read with LF), and one that
+    starts with a UTF-8 byte-order mark keeps it (its text is read without).  Stale
     temporary files of stopped writers in the folder are removed first.  The text goes
     to a temporary file in the same folder, is flushed and synced, takes the old file's
     permission bits (a new file those of the umask), and then replaces the old file in
@@ -483,8 +506,11 @@ def atomic_write(path: str | os.PathLike, text: str) -> None:
     # Through a link: the file it leads to is replaced, and the link stays a link.
     path = Path(os.path.realpath(path)) if os.path.islink(path) else Path(path)
     refuse_irregular_target(path)
-    if "\r" not in text and _line_ending(path) == "\r\n":
+    ending, bom = _saved_form(path)
+    if "\r" not in text and ending == "\r\n":
         text = text.replace("\n", "\r\n")  # a file read with CRLF (load) keeps them
+    if bom and not text.startswith(BOM):
+        text = BOM + text  # and one that starts with a byte-order mark keeps it
     folder = path.parent if str(path.parent) else Path(".")
     _remove_stale_temporaries(folder)
     try:

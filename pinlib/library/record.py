@@ -30,7 +30,7 @@ from pinlib.core import messages as M
 from pinlib.core import nearby
 from pinlib.core.commandtext import continued_lines
 from pinlib.core.errors import InputError, LibraryError, PinlibError, WriteError
-from pinlib.core.tomlfile import atomic_write, file_lock, line_index, line_of, tomllib
+from pinlib.core.tomlfile import BOM, atomic_write, file_lock, line_index, line_of, tomllib
 from pinlib.library import loader
 from pinlib.library.fields import resolve_path
 from pinlib.library.schema import FORMAT
@@ -490,7 +490,8 @@ def record_value(library: loader.Library, part_id: str, field: str, value_text: 
 
     with file_lock(path):
         try:
-            old_text = path.read_text(encoding="utf-8")
+            # as load reads it: a byte-order mark as if absent (atomic_write keeps it)
+            old_text = path.read_text(encoding="utf-8").removeprefix(BOM)
         except OSError as exc:
             raise LibraryError(M.CANNOT_READ.format(reason=exc.strerror),
                                file=str(path)) from None

@@ -277,7 +277,7 @@ class Ranking:
                     if v is not None and v[0] is None and getattr(v, "reason", None):
                         blanks.setdefault((label, v.reason), []).append(c.part)
                 rows.append(row)
-            table, dropped = fit_table(head, rows, width, keep=5)
+            table, dropped = fit_table(head, rows, width, keep=5, names=1)
             lines.append("")
             lines += table
             if dropped:

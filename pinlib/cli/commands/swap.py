@@ -258,12 +258,12 @@ def _write(design, swaps: dict) -> bool:
     """Write the substituted parts into the design file (locked; refused when the file
     changed since it was read); True when the file changed."""
     from pinlib.core.errors import WriteError
-    from pinlib.core.tomlfile import atomic_write, file_lock
+    from pinlib.core.tomlfile import BOM, atomic_write, file_lock
     from pinlib.studies.compare import swapped_text
 
     text = swapped_text(design, swaps)
     with file_lock(design.path):
-        now = design.path.read_text(encoding="utf-8")
+        now = design.path.read_text(encoding="utf-8").removeprefix(BOM)  # as load reads it
         if now != design.text:
             raise WriteError(M.DESIGN_CHANGED_DURING_SWAP, file=str(design.path),
                              hint="run the swap again")

@@ -70,14 +70,23 @@ def _m(text) -> str:
     return _mt(text)
 
 
-def _code(text) -> str:
+def _title(text) -> str:
+    """User text that ends a heading line: as _mt makes it, and a run of ``#`` at its end
+    escaped, which CommonMark would take for the heading's closing marks and drop."""
+    return re.sub(r"(?<= )(#+)$", r"\\\1", _mt(text))
+
+
+def _code(text, *, cell: bool = False) -> str:
     """Text shown as inline code, whatever backticks it holds: the fence is longer than
-    any run of backticks inside (CommonMark code spans), and the text is one line."""
+    any run of backticks inside (CommonMark code spans), and the text is one line.  In a
+    table ``cell``, ``|`` is escaped (GFM reads the table's pipes before the code span);
+    elsewhere a code span shows a backslash as written, so it stays as it is."""
     s = " ".join(str(text).split())
     run = max((len(r) for r in re.findall(r"`+", s)), default=0)
     fence = "`" * (run + 1)
     pad = " " if s.startswith("`") or s.endswith("`") or not s else ""
-    return f"{fence}{pad}{s}{pad}{fence}".replace("|", "\\|")
+    code = f"{fence}{pad}{s}{pad}{fence}"
+    return code.replace("|", "\\|") if cell else code
 
 
 def _with_code(template: str, **fields) -> str:
@@ -143,7 +152,7 @@ class _Markdown:
     def page(self) -> tuple[str, dict[str, str]]:
         r, res = self.r, self.r.result
         counts = _counts(res)
-        self.w(f"# Design review: {_mt(res.design)}", "",
+        self.w(f"# Design review: {_title(res.design)}", "",
                *_wrapped(f"**Caution.** {_mt(CAUTION)}", "> ", "> "), "")
         if res.path:
             self.w(f"Design file: {_code(res.path)}", "")
@@ -253,7 +262,7 @@ class _Markdown:
                "provenance* is not stated on the value itself: it is the provenance of the part "
                "file that set it."), "")
         for ref, p in self.r.parts.items():
-            self.w(f"### {_mt(_part_heading(ref, p))}", "")
+            self.w(f"### {_title(_part_heading(ref, p))}", "")
             for k, v in _part_facts(p):
                 self.w(*_wrapped(f"{k}: {_mt(v)}", "- "))
             self.w("")
@@ -264,7 +273,7 @@ class _Markdown:
             for key, e in (p.get("values") or {}).items():
                 src = e.get("source")
                 ref_text = f"[{cite.setdefault(src, len(cite) + 1)}]" if src else "—"
-                rows.append([_code(value_label(key)), _m(_part_value(e)), _m(_typ(e)),
+                rows.append([_code(value_label(key), cell=True), _m(_part_value(e)), _m(_typ(e)),
                              _m(_basis(e)), ref_text, _m(_origin(e, p.get("part", "")))])
             self.w(*_table(["Value", "Resolved", "Typical", "Basis", "Source", "Set in"],
                            rows))

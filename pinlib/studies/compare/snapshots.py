@@ -15,7 +15,7 @@ from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.quantity import Threshold
 from pinlib.core.records import Record
-from pinlib.core.tomlfile import atomic_write, read_regular
+from pinlib.core.tomlfile import UTF8_BOM, atomic_write, read_regular
 from pinlib.library.loader import BUILTIN_DIR
 from pinlib.library.schema import Part
 from pinlib.library.values import Sourced
@@ -298,7 +298,7 @@ def load_snapshot(path) -> dict | None:
             return None
         raise
     try:
-        data = json.loads(raw.decode("utf-8"))
+        data = json.loads(raw.removeprefix(UTF8_BOM).decode("utf-8"))  # a BOM as if absent
     except UnicodeDecodeError:
         raise InputError(M.NOT_UTF8, file=str(path), hint=hint) from None
     except json.JSONDecodeError as exc:
