@@ -494,7 +494,7 @@ def test_required_behaviours_are_represented(lib):
 
 
 # ---------------------------------------------------------------------------
-# GPIO: the controllers' general-purpose I/O
+# GPIO: the controllers' general-purpose I/O, the supervisor class
 # ---------------------------------------------------------------------------
 
 # One general-purpose I/O in the three set-ups firmware gives it (controller-base): the
@@ -524,3 +524,16 @@ def test_microcontrollers_have_a_reset_input_a_supervisor_can_drive(lib):
         assert (pin.function, pin.drive) == ("gpio", "input"), pid
         assert None not in (pin.v_il, pin.v_ih, pin.abs_max, pin.c_in), pid
 
+
+def test_a_voltage_supervisor_class_with_an_open_drain_reset(lib):
+    part = lib.get("supervisor-od")
+    assert not part.abstract and part.category == "power"
+    reset = part.pins["reset"]
+    assert (reset.function, reset.drive) == ("gpio", "open-drain")
+    assert None not in (reset.v_ol, reset.i_ol, reset.c_in, reset.abs_max)
+    # it serves the common rails (1.8, 3.3 and 5 V, common practice, no source) ...
+    assert part.supply.min.value <= 1.8 and part.supply.max.value >= 5.0
+    # ... and its output takes a pull-up to any of them whatever its own rail
+    assert reset.abs_max.at(part.supply.min.value) >= 5.0
+    mr = part.pins["mr"]
+    assert (mr.function, mr.drive) == ("gpio", "input") and mr.abs_max is not None
