@@ -469,3 +469,21 @@ def test_json_is_written_whole(monkeypatch):
     assert main(["check", str(DEMO), "--json"]) == 0
     assert Counting.writes == 1
     assert json.loads(out.getvalue())["format"] == "pinlib.result/1"
+
+
+def test_the_gpio_example_reads_at_80_columns(capsys, monkeypatch):
+    # the invented GPIO example (workbooks/designs/gpio-reset-board.toml): both lines
+    # pass, one line a bus, and nothing wider than the terminal
+    monkeypatch.setenv("COLUMNS", "80")
+    design = ROOT / "workbooks" / "designs" / "gpio-reset-board.toml"
+    seen = {}
+    for extra in ([], ["--detail"]):
+        assert main(["check", str(design), *extra]) == 0
+        seen[bool(extra)] = out = capsys.readouterr().out
+        assert max(len(ln) for ln in out.splitlines()) <= 80, extra
+        assert "WARN" not in out and "FAIL" not in out
+    buses = [ln for ln in seen[False].splitlines() if ln.startswith("PASS ")]
+    assert [b.split(":")[0] for b in buses] == [
+        "PASS reset (GPIO)", "PASS fpga-enable (GPIO)",
+        "PASS Controller board, reset and enable lines (invented example)"]
+    assert "(reset rise)" in seen[False] and "lines.reset.pullup" in seen[True]

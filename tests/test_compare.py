@@ -1065,7 +1065,8 @@ def test_values_of_a_pin_no_bus_connects_are_counted_not_listed():
     old = snapshot(before, check_design(before))
     new = snapshot(after, check_design(after))
     assert old["parts"]["U12"]["unconnected"] == ["cipo", "dc"]
-    assert old["parts"]["U1"]["unconnected"] == []  # its CIPO is on the flash bus
+    # its CIPO is on the flash bus; its GPIO pins and reset input are on no bus of the demo
+    assert old["parts"]["U1"]["unconnected"] == ["gpio_in", "gpio_od", "gpio_out", "reset"]
     pc = next(p for p in compare(old, new).part_changes if p.ref == "U12")
     lines = pc.lines()
     # the CIPO pin's 10 values and the two times that are its own (t_valid, t_cs_valid)

@@ -491,3 +491,49 @@ def test_required_behaviours_are_represented(lib):
     assert relative_abs_max_1v8                                    # 1.8 V-only parts
     kinds = {p.bridge.kind for p in parts.values() if p.bridge is not None}
     assert kinds == {"repeater", "mosfet", "buffer", "isolator"}
+
+
+# ---------------------------------------------------------------------------
+# GPIO: the controllers' general-purpose I/O, the supervisor class
+# ---------------------------------------------------------------------------
+
+# One general-purpose I/O in the three set-ups firmware gives it (controller-base): the
+# format gives a pin one drive, so each set-up is a pin of its own that a design names.
+_GPIO_SETUPS = {"gpio_out": "push-pull", "gpio_in": "input", "gpio_od": "open-drain"}
+
+
+def test_every_controller_has_a_gpio_in_each_set_up(lib):
+    controllers = {k: p for k, p in lib.placeable().items() if p.category == "controller"}
+    assert {"mcu-1v8", "mcu-3v3", "mcu-5v", "fpga-io-3v3"} <= set(controllers)
+    for pid, part in controllers.items():
+        for name, drive in _GPIO_SETUPS.items():
+            pin = part.pins.get(name)
+            assert pin is not None, f"{pid} has no {name}"
+            assert (pin.function, pin.drive) == ("gpio", drive), f"{pid} {name}"
+            assert pin.c_in is not None and pin.abs_max is not None, f"{pid} {name}"
+        assert _has_drive_data(part.pins["gpio_out"]), pid
+        assert part.pins["gpio_out"].v_oh is not None, pid  # a level check needs VOH
+        gin, god = part.pins["gpio_in"], part.pins["gpio_od"]
+        assert gin.v_il is not None and gin.v_ih is not None, pid
+        assert god.v_ol is not None and god.i_ol is not None, pid
+
+
+def test_microcontrollers_have_a_reset_input_a_supervisor_can_drive(lib):
+    for pid in ("mcu-1v8", "mcu-3v3", "mcu-5v"):
+        pin = lib.get(pid).pins["reset"]
+        assert (pin.function, pin.drive) == ("gpio", "input"), pid
+        assert None not in (pin.v_il, pin.v_ih, pin.abs_max, pin.c_in), pid
+
+
+def test_a_voltage_supervisor_class_with_an_open_drain_reset(lib):
+    part = lib.get("supervisor-od")
+    assert not part.abstract and part.category == "power"
+    reset = part.pins["reset"]
+    assert (reset.function, reset.drive) == ("gpio", "open-drain")
+    assert None not in (reset.v_ol, reset.i_ol, reset.c_in, reset.abs_max)
+    # it serves the common rails (1.8, 3.3 and 5 V, common practice, no source) ...
+    assert part.supply.min.value <= 1.8 and part.supply.max.value >= 5.0
+    # ... and its output takes a pull-up to any of them whatever its own rail
+    assert reset.abs_max.at(part.supply.min.value) >= 5.0
+    mr = part.pins["mr"]
+    assert (mr.function, mr.drive) == ("gpio", "input") and mr.abs_max is not None

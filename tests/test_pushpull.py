@@ -1190,3 +1190,64 @@ lines.reset = { length = "5 cm", capacitance = "1 pF/cm", pullup = "10 kΩ" }
     assert c is not None and c.status == "warn"
     assert "U1.cs" in c.message and "U4.int" in c.message
     assert "common practice, no source" in c.source
+
+
+GPIO_EXAMPLE = Path(__file__).parents[1] / "workbooks" / "designs" / "gpio-reset-board.toml"
+
+
+def _at(line, check_id: str, subject: str):
+    """The line's check ``check_id`` at the receiver ``subject``."""
+    (c,) = [c for c in line.checks if c.id == check_id and c.subject == subject]
+    return c
+
+
+def test_the_gpio_example_design_passes_with_figures_worked_by_hand():
+    # the example (invented, built-in classes): a supervisor's open-drain reset with a
+    # 10 kΩ line pull-up to U1's reset pin and an FPGA input, and U1's push-pull GPIO
+    # to the FPGA; every figure below is worked from the parts' own values
+    from pinlib.engines.dispatch import check_design
+
+    d = load_design(GPIO_EXAMPLE)
+    res = check_design(d)
+    assert res.status == "pass"
+    assert all(c.status == "pass" for b in res.buses for ln in b.lines for c in ln.checks)
+    lib = d.library
+    sink = lib.get("supervisor-od").pins["reset"]
+    reset_in = lib.get("mcu-3v3").pins["reset"]
+    fpga_in = lib.get("fpga-io-3v3").pins["gpio_in"]
+    gpio_out = lib.get("mcu-3v3").pins["gpio_out"]
+    rp = 10e3  # the design's lines.reset.pullup
+    lo, hi = VDD * 0.97, VDD * 1.03  # the design's 3 % supply tolerance
+    lines = {ln.signal: ln for b in res.buses for ln in b.lines}
+
+    ln = lines["reset"]
+    f = {k: v.value for k, v in ln.figures.items()}
+    # derived from the lossless line, C' = tpd / Z0: the trace's capacitance is its delay
+    # over its impedance (the engine's own Z0 and td of the outer-0p2 geometry); the
+    # pull-up charges it and every pin on the net, the released sink's own included
+    pins = [sink, reset_in, fpga_in]
+    c_total = f["trace_delay"] / f["z0"] + sum(p.c_in.value for p in pins)
+    assert c_total == pytest.approx(5e-12 + 10e-12 + 8e-12 + f["trace_delay"] / f["z0"])
+    assert f["load_capacitance"] == pytest.approx(c_total, rel=1e-12)
+    # derived from the RC step (docs/references.md, RC edges): 10-90 % = ln 9 Rp C, a
+    # 10 kΩ pull-up being far above Z0 (the line charges as one capacitance)
+    assert f["edge_rise_time"] == pytest.approx(math.log(9.0) * rp * c_total, rel=1e-3)
+    assert 600e-9 < f["edge_rise_time"] < 700e-9  # derived: ln 9 x 10 kΩ x 29 pF = 642 ns
+    # derived: high = the low rail less the three pins' leakage through Rp; low = the
+    # sink (0.3 V at 1 mA: 300 Ω) against Rp from the high level at the high rail
+    leak = sum(p.leakage.value for p in pins)
+    assert _at(ln, "level-high", "U1").value == pytest.approx(lo - leak * rp, rel=1e-9)
+    r_sink = sink.v_ol.at(hi) / sink.i_ol.value
+    assert r_sink == pytest.approx(300.0)
+    assert _at(ln, "level-low", "U1").value == pytest.approx(
+        (hi - leak * rp) * r_sink / (r_sink + rp), rel=1e-6)
+
+    ln = lines["enable"]
+    # derived: a push-pull output's guaranteed levels at the rail's worst corner
+    assert _at(ln, "level-high", "U3").value == pytest.approx(gpio_out.v_oh.at(lo), rel=1e-9)
+    assert _at(ln, "level-low", "U3").value == pytest.approx(gpio_out.v_ol.at(hi), rel=1e-9)
+    # derived: the load (under 15 pF) is below the class's first edge point (2.5 ns at
+    # 15 pF), so the edge is faster than that point, and no faster than half of it
+    assert ln.figures["load_capacitance"].value < gpio_out.edges[0].load.value
+    first = gpio_out.edges[0].rise.value
+    assert 0.5 * first < ln.figures["edge_rise_time"].value < first
