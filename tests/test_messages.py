@@ -1621,6 +1621,19 @@ def _(env):
         'geometry = "g" }', 'geometry = "g", pullup = "10 kΩ" }')), env)
 
 
+@case("LINE_PULLUP_TOLERANCE_ALONE")
+def _(env):
+    return _fails(lambda e: e.design("""
+[[bus]]
+id = "rst"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [{ ref = "U10", part = "io-expander-i2c", role = "controller", pin = "int" },
+           { ref = "U2", part = "display-controller-spi", pin = "dc" }]
+lines.reset = { length = "5 cm", capacitance = "1 pF/cm", pullup_tolerance = "5 %" }
+"""), env)
+
+
 @case("DEVICE_PIN_NOT_GPIO")
 def _(env):
     return _fails(lambda e: e.design(SPI_BUS.replace(
