@@ -95,6 +95,30 @@ def test_new_lists_gpio_pins_and_parts_on_no_bus(tmp_path):
     assert [b.protocol for b in design.buses] == ["i2c", "spi"]
 
 
+def test_new_wires_a_gpio_line_between_an_output_and_an_input_of_one_name(tmp_path, capsys):
+    # a supervisor's open-drain reset and a microcontroller's reset input (built-in
+    # classes) share no bus protocol; the starter wires the line their pins name, with a
+    # placeholder pull-up for the open-drain output, and lists the other GPIO pins
+    path = tmp_path / "board.toml"
+    assert main(["new", str(path), "--part", "U1=mcu-3v3", "--part", "U2=supervisor-od"]) == 0
+    text = path.read_text(encoding="utf-8")
+    assert "(1 bus)" in capsys.readouterr().err
+    assert all(len(line) <= 80 for line in text.splitlines())
+    design = load_design(path)
+    (bus,) = design.buses
+    assert bus.protocol == "gpio" and bus.id == "reset" and list(bus.lines) == ["reset"]
+    assert bus.lines["reset"].pullup == 10e3
+    assert [(d.ref, d.role, d.pin) for d in bus.devices] == [
+        ("U2", "controller", "reset"), ("U1", "peripheral", "reset")]
+    assert "U1.gpio_out" in text and "U2.mr" in text and "U1.reset," not in text
+    result = check_design(design)
+    assert result.status == "pass"
+    # two outputs of one name and no input (two microcontrollers' gpio_out) make no line
+    path2 = tmp_path / "two.toml"
+    assert main(["new", str(path2), "--part", "U1=mcu-3v3", "--part", "U2=mcu-3v3"]) == 0
+    assert [b.protocol for b in load_design(path2).buses] == ["i2c", "spi"]
+
+
 @pytest.mark.parametrize("bridge", ["level-translator-mosfet", "i2c-repeater"])
 def test_new_puts_parts_on_another_rail_across_a_bridge(tmp_path, capsys, bridge):
     # a 1.8 V sensor with a 3.3 V controller and a bridging part: two segments, the

@@ -8,7 +8,10 @@ the others.  An open-drain bus with one bridging part (a translator, a repeater)
 that do not all run from the controller's rail gets two segments across it: the
 controller's rail and the parts that run from it, and the others on the rail of the
 first of them, the lower rail facing the side that runs from the lower supply.  GPIO
-lines are named freely, so they are listed in a comment rather than guessed.  The values
+lines are named freely: a pin name that some parts give a GPIO output of (push-pull or
+open-drain) and others a GPIO input of (a supervisor's ``reset`` and a microcontroller's)
+gets a GPIO bus of that one line; every other GPIO pin is listed in a comment rather
+than guessed.  The values
 written (rail, trace, clock) are placeholders a designer replaces; the file says so
 beside each one, and it loads and checks as it is.
 """
@@ -212,6 +215,59 @@ def _bus(group, members, bridges=()) -> tuple[list[str], bool]:
     return out, False
 
 
+#: The placeholder pull-up of a starter GPIO line that an open-drain output drives.
+_GPIO_PULLUP = "10 kΩ"
+
+
+def _gpio_nets(placed) -> list[tuple[str, list]]:
+    """The GPIO lines a starter wires itself: each pin name that placed parts (bridging
+    parts aside) give a GPIO pin of, one of them an output (push-pull or open-drain) and
+    another an input; ``(name, [(placement, part, pin), ...])``, the parts in the order
+    given."""
+    nets: dict[str, list] = {}
+    for pl, p in placed:
+        if p.sides:
+            continue
+        for name, pin in p.pins.items():
+            if pin.function == "gpio":
+                nets.setdefault(name, []).append((pl, p, pin))
+    return [(name, pins) for name, pins in nets.items()
+            if any(x[2].drive != "input" for x in pins)
+            and any(x[2].drive == "input" for x in pins)]
+
+
+def _gpio_bus(name: str, pins: list, taken: set[str]) -> list[str]:
+    """A GPIO bus of one line: the pins of ``name``, the first output driving it."""
+    driver = next(x for x in pins if x[2].drive != "input")
+    members = [driver] + [x for x in pins if x is not driver]
+    bus_id = name if name not in taken else f"{name}-gpio"
+    open_drain = any(x[2].drive == "open-drain" for x in pins)
+    refs = ", ".join(f"{pl.ref}.{name}" for pl, _, _ in members)
+    out = ["", *wrap(f"A GPIO line of the pins named {name}: {refs}.", WIDTH, "# ", ""),
+           "[[bus]]", f"id = {_toml_string(bus_id)}", 'protocol = "gpio"',
+           _noted(f'supply = "{format_si(_supply(driver[1]), "V")}"',
+                  "the rail of the I/O: check it"),
+           'supply_tolerance = "5 %"', "devices = ["]
+    for pl, _, _ in members:
+        role = ', role = "controller"' if pl is driver[0] else ""
+        out.append(f'  {{ ref = {_toml_string(pl.ref)}, part = "{pl.part_id}"{role}, '
+                   f"pin = {_toml_string(name)} }},")
+    out.append("]")
+    line = f'lines.{_toml_key(name)} = {{ length = "5 cm", geometry = "outer"'
+    if open_drain:
+        out += ["# an open-drain output: the line's pull-up to the supply (placeholder)",
+                f'{line}, pullup = "{_GPIO_PULLUP}" }}']
+    else:
+        out.append(_noted(line + " }", "placeholder: your routed length"))
+    return out
+
+
+def _toml_key(name: str) -> str:
+    """A pin name as a TOML key: bare where TOML allows, else quoted."""
+    bare = name and all(c.isascii() and (c.isalnum() or c in "_-") for c in name)
+    return name if bare else _toml_string(name)
+
+
 def starter_text(title: str, placed: list[tuple[Placement, object]],
                  library: list[str] | tuple[str, ...] = ()) -> tuple[str, int]:
     """The text of a starter design file.
@@ -259,12 +315,22 @@ def starter_text(title: str, placed: list[tuple[Placement, object]],
         text, bridged = _bus(group, members, bridges)
         out += text
         on_bus |= {pl.ref for pl, _ in members + (bridges if bridged else [])}
+    taken = set(protocols.PROTOCOLS)  # a bus named like a protocol's would read oddly
+    wired = set()
+    for name, pins in _gpio_nets(placed):
+        out += _gpio_bus(name, pins, taken)
+        taken.add(name)
+        buses += 1
+        wired |= {(pl.ref, name) for pl, _, _ in pins}
+        on_bus |= {pl.ref for pl, _, _ in pins}
     gpio = [f"{pl.ref}.{name}" for pl, p in placed
-            for name, pin in p.pins.items() if pin.function == "gpio"]
+            for name, pin in p.pins.items()
+            if pin.function == "gpio" and (pl.ref, name) not in wired]
     if gpio:
-        out += ["", *wrap('GPIO pins of these parts (a bus with protocol = "gpio" carries '
-                          "them, a `lines.NAME` each, a device's `pin` naming its pin): "
-                          + ", ".join(gpio), WIDTH, "# ", "")]
+        other = "other " if wired else ""
+        out += ["", *wrap(f'The {other}GPIO pins of these parts (a bus with protocol = "gpio" '
+                          "carries them, a `lines.NAME` each, a device's `pin` naming its "
+                          "pin): " + ", ".join(gpio), WIDTH, "# ", "")]
     left = [pl.ref for pl, _ in placed if pl.ref not in on_bus]
     if left:
         out += ["", *wrap("On no bus (no protocol they share with another part): "
