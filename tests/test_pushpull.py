@@ -869,6 +869,47 @@ def test_a_line_pull_up_pulls_to_the_varied_rail(tmp_path):
                                                          rel=1e-9)
 
 
+def _slow_input_part(folder, limit: str) -> None:
+    """A team part: the built-in display controller whose dc input states the slowest
+    edge it is specified for (invented test data)."""
+    folder.mkdir(exist_ok=True)
+    (folder / "slow-in.toml").write_text(f"""format = "pinlib.part/1"
+id = "slow-in"
+title = "Display controller whose dc input states a transition time (invented)"
+category = "display"
+extends = "display-controller-spi"
+provenance = {{ basis = "estimate", source = "test data, invented" }}
+
+[pins.dc]
+t_transition_max = "{limit}"
+""", encoding="utf-8")
+
+
+@pytest.mark.parametrize("limit, status", [("100 ns", "fail"), ("1 µs", "pass")])
+def test_an_input_transition_time_is_checked_at_its_receiver(tmp_path, limit, status):
+    # an open-drain reset through 10 kΩ (invented, built-in classes) into an input that
+    # states the slowest edge it takes: the 10-90 % rise, ln 9 Rp C (docs/references.md,
+    # RC edges) over 5 pF of trace and 10 pF at each pin at the pull-up's +1 % corner
+    # (about 232 ns), fails against 100 ns with a fix that names the pull-up, and passes
+    # against 1 µs
+    _slow_input_part(tmp_path / "parts", limit)
+    d = _builtin_design(tmp_path, 'library = ["parts"]\n\n' + _OD_RESET.format(
+        extra=', pullup = "10 kΩ"').replace('"display-controller-spi"', '"slow-in"'))
+    (ln,) = evaluate_bus(d.bus("rst"), d).lines
+    c = ln.check("input-transition")
+    rise = math.log(9.0) * 10.1e3 * 25e-12
+    assert c.value == pytest.approx(rise, rel=2e-3)
+    assert c.value == pytest.approx(ln.figures["edge_rise_time"].value, rel=2e-2)
+    assert c.limit == (100e-9 if limit == "100 ns" else 1e-6)
+    assert c.status == status and c.subject == "U2"
+    assert "slow-in t_transition_max: test data, invented" == c.source
+    assert ("pullup" in c.fix) if status == "fail" else c.fix is None
+    # a receiver that states none gets no such check
+    d = _builtin_design(tmp_path, _OD_RESET.format(extra=', pullup = "10 kΩ"'), name="n.toml")
+    (ln,) = evaluate_bus(d.bus("rst"), d).lines
+    assert ln.check("input-transition") is None
+
+
 def test_a_line_pull_up_takes_a_tolerance_of_its_own(tmp_path):
     # lines.<signal>.pullup_tolerance (invented, built-in classes): the corners take the
     # resistor at its ends, and Monte Carlo draws it as a parameter of its own

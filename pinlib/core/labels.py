@@ -104,6 +104,7 @@ CHECKS: dict[str, str] = {
     "pullup-window": "Pull-up window Rp(min)…Rp(max)",
     "scl-frequency": "SCL frequency",
     "edge-time": "Edge time",
+    "input-transition": "Input transition time",
     "line-delay": "Line delay ≤ clock period",
     # its value and limit are counts (unit ""): the label says of what
     "ringing": "Ringing re-crossings",

@@ -42,6 +42,7 @@ RANGES: dict[tuple[str, str], tuple[float, float, str]] = {
     ("pullup_internal", "*"): (1e3, 1e6, "Ω"),
     ("t_of_min", "*"): (0.0, 1e-6, "s"),
     ("t_of_max", "*"): (1e-9, 1e-6, "s"),
+    ("t_transition_max", "*"): (1e-9, 1e-3, "s"),
     ("f_max", "timing"): (1e3, 10e9, "Hz"),
     ("t_valid", "timing"): (0.0, 1e-6, "s"),
     ("t_setup", "timing"): (0.0, 1e-6, "s"),

@@ -8,28 +8,29 @@ it for information.  Misspelt keys are errors (a record refuses a key it does no
 
 The glossary of field names (used throughout pinlib):
 
-========== ======================================================== =====
-name       meaning                                                  unit
-========== ======================================================== =====
-c_in       pin capacitance (input, or I/O in any state), max        F
-leakage    input leakage current, max                               A
-v_il       input low threshold, max (highest level read as low)     V
-v_ih       input high threshold, min (lowest level read as high)    V
-v_ol       output low level, max, at i_ol                           V
-i_ol       sink current at which v_ol is guaranteed                 A
-v_oh       output high level, min, at i_oh                          V
-i_oh       source current at which v_oh is guaranteed               A
-r_out      output resistance of a push-pull driver                  Ω
-fast       a push-pull output's fast corner: its own r_out, edges
-abs_max    absolute maximum input voltage                           V
-pullup     a pull-up resistor the part carries on this pin          Ω
-t_valid    clock edge to output valid, max (SPI)                    s
-t_setup    input setup time before the sampling edge, min           s
-t_hold     input hold time after the sampling edge, min             s
-t_pd       propagation delay through a bridging part, max           s
-t_of_min   output fall time 0.7 to 0.3 VDD at the pin, min          s
-t_of_max   output fall time 0.7 to 0.3 VDD at the pin, max          s
-========== ======================================================== =====
+================ ======================================================== =====
+name             meaning                                                  unit
+================ ======================================================== =====
+c_in             pin capacitance (input, or I/O in any state), max        F
+leakage          input leakage current, max                               A
+v_il             input low threshold, max (highest level read as low)     V
+v_ih             input high threshold, min (lowest level read as high)    V
+v_ol             output low level, max, at i_ol                           V
+i_ol             sink current at which v_ol is guaranteed                 A
+v_oh             output high level, min, at i_oh                          V
+i_oh             source current at which v_oh is guaranteed               A
+r_out            output resistance of a push-pull driver                  Ω
+fast             a push-pull output's fast corner: its own r_out, edges
+abs_max          absolute maximum input voltage                           V
+pullup           a pull-up resistor the part carries on this pin          Ω
+t_valid          clock edge to output valid, max (SPI)                    s
+t_setup          input setup time before the sampling edge, min           s
+t_hold           input hold time after the sampling edge, min             s
+t_pd             propagation delay through a bridging part, max           s
+t_of_min         output fall time 0.7 to 0.3 VDD at the pin, min          s
+t_of_max         output fall time 0.7 to 0.3 VDD at the pin, max          s
+t_transition_max an input's rise/fall time (10-90 %), max                 s
+================ ======================================================== =====
 """
 
 from __future__ import annotations
@@ -146,6 +147,9 @@ class Pin(Record):
     off_tolerant: bool = False
     t_of_min: Time | None = None  # output fall time of a slope-controlled open-drain stage
     t_of_max: Time | None = None
+    # the slowest edge (10-90 %) an input is specified for: an input without hysteresis
+    # may switch more than once on a slower one
+    t_transition_max: Time | None = None
     description: str | None = None
 
     @after

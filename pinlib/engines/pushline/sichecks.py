@@ -35,6 +35,8 @@ def _si_checks(a: LineAnalysis, cases: dict, clock: float | None, clock_line: bo
         if v_il is None or v_ih is None or not v_ih > v_il:
             continue
         checks.append(_ringing_check(rx, cases, v_il, v_ih, clock_line))
+        if rx.pin.t_transition_max is not None:
+            checks.append(_transition_check(rx, cases, a.net is not None, warn))
         for ref, c in cases.items():
             if ref != rx.ref:
                 checks += _level_checks(rx, drivers[ref], c, v_il, v_ih, warn,
@@ -237,6 +239,31 @@ def _level_checks(rx: Endpoint, d: Endpoint, c, v_il: float, v_ih: float,
             warn_margin=warn, subject=subject, details={"driver": d.label,
                                                         "driver_source": ol_src}),
     ]
+
+
+def _transition_check(rx: Endpoint, cases: dict, routed: bool, warn: float) -> Check:
+    """The slowest 10-90 % edge at a receiver (from every other driver, at its own point
+    on a route) against the input transition time its part states."""
+    limit = rx.level("t_transition_max")
+    edges = [(max(c.wave_at(rx.ref, "rise").t_edge, c.wave_at(rx.ref, "fall").t_edge)
+              if routed else max(c.rise.t_edge, c.fall.t_edge), ref)
+             for ref, c in cases.items() if ref != rx.ref]
+    edge, by = max(edges, default=(0.0, None))
+    fix = None
+    if edge > limit:
+        drv = cases[by].driver if by is not None else None
+        fix = ("a smaller pull-up speeds the rise (the line's pullup), or a receiver with "
+               "a Schmitt-trigger input" if drv is not None and drv.pin.drive == "open-drain"
+               else "a stronger driver or less load speeds the edge (a series resistor "
+                    "slows it), or a receiver with a Schmitt-trigger input")
+    many = sum(ref != rx.ref for ref in cases) > 1
+    return check_max(
+        "input-transition", edge, limit, "s", rx.source("t_transition_max"),
+        f"slowest 10-90 % edge {_fmt(edge, 's')} at {rx.label}"
+        + (f" while {by} drives" if many and by else "")
+        + f" against its input transition time, at most {_fmt(limit, 's')}"
+        + _corner(cases.values(), "slow"),
+        warn_margin=warn, subject=rx.ref, fix=fix)
 
 
 def _edge_check(cases: dict, clock: float, warn: float, rx: Endpoint | None = None) -> Check:
