@@ -904,6 +904,16 @@ def test_an_input_transition_time_is_checked_at_its_receiver(tmp_path, limit, st
     assert c.status == status and c.subject == "U2"
     assert "slow-in t_transition_max: test data, invented" == c.source
     assert ("pullup" in c.fix) if status == "fail" else c.fix is None
+    # on a route, the edge at the receiver's own point (the same RC rise: 10 kΩ is far
+    # above the trace's Z0, so the line charges as one capacitance)
+    d = _builtin_design(tmp_path, 'library = ["parts"]\n\n' + _OD_RESET.format(
+        extra=', pullup = "10 kΩ"').replace('"display-controller-spi"', '"slow-in"').replace(
+        'lines.reset = { length = "5 cm", capacitance = "1 pF/cm", pullup = "10 kΩ" }',
+        'lines.reset = { pullup = "10 kΩ", route = [{ from = "U10", to = "U2", '
+        'length = "5 cm", capacitance = "1 pF/cm" }] }'), name="route.toml")
+    (ln,) = evaluate_bus(d.bus("rst"), d).lines
+    routed = ln.check("input-transition")
+    assert routed.value == pytest.approx(rise, rel=2e-3) and routed.status == status
     # a receiver that states none gets no such check
     d = _builtin_design(tmp_path, _OD_RESET.format(extra=', pullup = "10 kΩ"'), name="n.toml")
     (ln,) = evaluate_bus(d.bus("rst"), d).lines
