@@ -361,3 +361,21 @@ def test_i2c_line_stays_a_choice_of_sda_and_scl(design, capsys):
     assert main(["measured", str(design), "--bus", "i2c0", "--line", "scl", "--rise",
                  "250ns", "--probe", "10pF"]) == 1
     assert "segment i2c0, SCL" in capsys.readouterr().out
+
+
+def test_gpio_contributions_split_traces_cables_and_extra(gpio_design, tmp_path):
+    text = gpio_design().read_text(encoding="utf-8").replace(
+        'lines.reset = { length = "5 cm", capacitance = "1 pF/cm", pullup = "10 kΩ" }',
+        'lines.reset = { sections = [{ length = "3 cm", capacitance = "1 pF/cm" }, '
+        '{ part = "ribbon-cable", length = "20 cm" }], pullup = "10 kΩ", '
+        'extra_capacitance = "4 pF" }')
+    path = tmp_path / "cable.toml"
+    path.write_text(text, encoding="utf-8")
+    got = compare_rise(load_design(path), "reset", 900e-9, 10e-12)
+    # derived: 3 cm x 1 pF/cm; ribbon-cable's 0.5 pF/cm (its part file) x 20 cm; the
+    # line's extra_capacitance; the two pins as in GPIO_CB
+    assert got.contributions == pytest.approx(
+        {"pins": 15e-12, "traces": 3e-12, "cables": 10e-12, "extra": 4e-12})
+    assert got.cb_model == pytest.approx(32e-12)
+    assert got.verdict == "above"
+    assert [r.split(" ")[0] for r in got.revisit[:4]] == ["pins", "cables", "extra", "traces"]
