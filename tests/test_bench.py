@@ -332,8 +332,8 @@ def test_gpio_command_slow_reading_disagrees(gpio_design, capsys, monkeypatch):
     (["--bus", "reset", "--line", "rst"], ["no line of that name on the bus",
                                            "(got 'rst'); expected reset"]),
     (["--bus", "reset", "--segment", "reset"], ["a GPIO bus has no segments"]),
-    (["--bus", "two"], ["the bus has several lines",
-                        "expected --line with one of reset, gpio_out"]),
+    (["--bus", "two"], ["the bus has several lines: name the one measured; expected "
+                        "--line with one of reset, gpio_out"]),
     (["--bus", "two", "--line", "reset"], ["the line has no pull-up",
                                            "lines.reset.pullup"]),
     (["--bus", "two", "--line", "gpio_out"], ["no open-drain pin drives this line",

@@ -264,7 +264,7 @@ def _gpio_line(bus: Bus, design: Design, signal: str | None, segment: str | None
                          expected=f"no --segment; --line names the line ({listed})")
     if signal is None:
         if len(names) != 1:
-            raise InputError(M.BENCH_LINE_NEEDED, field="--line", value="",
+            raise InputError(M.BENCH_LINE_NEEDED, field="--line",
                              expected=f"--line with one of {listed}")
         signal = names[0]
     if signal not in bus.lines:
