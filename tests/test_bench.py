@@ -164,3 +164,218 @@ def test_wrapped_output_never_parts_a_number_from_its_unit(design, capsys, monke
     for ln in lines:
         assert not re.search(r"(^|\s)[\d.]+$", ln), ln  # a number left without its unit
         assert not re.match(r"\s+(kΩ|pF|ns|Ω)\b", ln), ln
+
+
+# ---------------------------------------------------------------- a GPIO line, open-drain
+# A supervisor's open-drain reset output into a microcontroller's reset input, on a GPIO
+# bus with the line's own pull-up (built-in parts; the layout is invented test data).
+GPIO_DESIGN = """\
+format = "pinlib.design/1"
+title = "bench reading on a GPIO reset line (invented)"
+
+[[bus]]
+id = "reset"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U2", part = "supervisor-od", role = "controller", pin = "reset" },
+  { ref = "U1", part = "mcu-3v3", pin = "reset"{internal} },
+]
+lines.reset = { length = "5 cm", capacitance = "1 pF/cm", pullup = "10 kΩ"{tolerance} }
+
+[[bus]]
+id = "en"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller", pin = "gpio_out" },
+  { ref = "U3", part = "fpga-io-3v3", pin = "gpio_in" },
+]
+lines.enable = { length = "5 cm", capacitance = "1 pF/cm" }
+
+[[bus]]
+id = "two"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U2", part = "supervisor-od", role = "controller", pin = "reset" },
+  { ref = "U1", part = "mcu-3v3", pin = "reset" },
+]
+lines.reset = { length = "2 cm", capacitance = "1 pF/cm" }
+lines.gpio_out = { length = "2 cm", capacitance = "1 pF/cm" }
+"""
+
+# derived: the line's load capacitance, trace and every pin on the net (the open-drain
+# driver's own included): 5 cm x 1 pF/cm + supervisor-od reset c_in 5 pF + mcu-3v3 reset
+# c_in 10 pF (the built-in part files' maxima) = 20 pF
+GPIO_CB = 20e-12
+GPIO_RP = 10e3  # the design's lines.reset.pullup (invented test data)
+
+
+def _gpio_reading(cb: float, c_probe: float, rp: float = GPIO_RP,
+                  lo: float = 0.3, hi: float = 0.7) -> float:
+    """The rise between ``lo`` and ``hi`` of an RC charge through ``rp``. [s]"""
+    # published: UM10204 rev. 6, section 7.1: t = Rp (Cb + C_probe) ln((1 - lo)/(1 - hi))
+    return rp * (cb + c_probe) * math.log((1 - lo) / (1 - hi))
+
+
+@pytest.fixture()
+def gpio_design(tmp_path, monkeypatch):
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+
+    def write(internal: str = "", tolerance: str = ""):
+        path = tmp_path / "gpio.toml"
+        path.write_text(GPIO_DESIGN.replace("{internal}", internal)
+                        .replace("{tolerance}", tolerance), encoding="utf-8")
+        return path
+    return write
+
+
+def test_gpio_reading_the_model_predicts_agrees(gpio_design):
+    d = load_design(gpio_design())
+    t = _gpio_reading(GPIO_CB, 10e-12)
+    got = compare_rise(d, "reset", t, 10e-12, signal="reset")
+    assert got.verdict == "agrees" and got.revisit == [] and got.notes == []
+    assert got.cb == pytest.approx(GPIO_CB, rel=1e-9)  # the formula run backwards
+    assert got.rp == pytest.approx(GPIO_RP)  # U1 carries its pull-up, not counted here
+    assert got.rp_tolerance == pytest.approx(0.01)  # the line's default pullup_tolerance
+    assert got.cb_model == pytest.approx(GPIO_CB, rel=1e-12)
+    # derived: the same split as GPIO_CB's sum
+    assert got.contributions == pytest.approx(
+        {"pins": 15e-12, "traces": 5e-12, "cables": 0.0, "extra": 0.0})
+    assert got.segment is None and got.signal == "reset" and got.protocol == "gpio"
+
+
+def test_gpio_model_cb_is_the_engines_load_capacitance(gpio_design):
+    from pinlib.engines.dispatch import check_design
+
+    d = load_design(gpio_design())
+    line = next(ln for b in check_design(d).buses if b.id == "reset" for ln in b.lines)
+    engine = line.figures["load_capacitance"].value
+    assert compare_rise(d, "reset", 300e-9, 10e-12).cb_model == pytest.approx(engine,
+                                                                              rel=1e-12)
+
+
+def test_gpio_reading_half_as_slow_again_is_above(gpio_design):
+    d = load_design(gpio_design())
+    # derived: 50 % slower than the model's own reading
+    t = 1.5 * _gpio_reading(GPIO_CB, 10e-12)
+    got = compare_rise(d, "reset", t, 10e-12, signal="reset")
+    assert got.verdict == "above"
+    # derived: Cb = 1.5 (Cb + Cp) - Cp = 1.5 x 30 pF - 10 pF = 35 pF
+    assert got.cb == pytest.approx(35e-12, rel=1e-9)
+    assert [r.split(":")[0] for r in got.revisit] == [
+        "pins 15 pF", "traces 5 pF", "extra 0 pF", "the pull-up 10 kΩ on the line",
+        "the measurement"]
+
+
+def test_gpio_pullup_tolerance_and_pullups_in_parts(gpio_design):
+    d = load_design(gpio_design(internal=", internal_pullups = true",
+                                tolerance=', pullup_tolerance = "5 %"'))
+    got = compare_rise(d, "reset", 300e-9, 10e-12, signal="reset")
+    # derived: 10 kΩ in parallel with mcu-3v3's reset pullup_internal 40 kΩ = 8 kΩ
+    assert got.rp == pytest.approx(8e3)
+    assert got.rp_tolerance == pytest.approx(0.05)  # the design's pullup_tolerance
+    # derived from the RC formula with the reading 10 % short and Rp 5 % high
+    low = 300e-9 * 0.9 / (8e3 * 1.05 * K_30_70) - 10e-12
+    assert got.cb_low == pytest.approx(low, rel=1e-9)
+
+
+def test_gpio_line_push_pull_pins_also_drive_is_noted(tmp_path, monkeypatch):
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    text = GPIO_DESIGN.replace("{internal}", "").replace("{tolerance}", "").replace(
+        '{ ref = "U1", part = "mcu-3v3", pin = "reset" },\n]\nlines.reset = { length = "5',
+        '{ ref = "U1", part = "mcu-3v3", pin = "gpio_out" },\n]\nlines.reset = { length = "5')
+    assert "gpio_out" in text.split('id = "en"')[0]
+    path = tmp_path / "mixed.toml"
+    path.write_text(text, encoding="utf-8")
+    got = compare_rise(load_design(path), "reset", 300e-9, 10e-12)
+    assert len(got.notes) == 1 and got.notes[0].startswith("U1.gpio_out also drives reset")
+
+
+def test_gpio_command_agrees_reads_at_80_columns_and_json(gpio_design, capsys, monkeypatch):
+    path = str(gpio_design())
+    t = _gpio_reading(GPIO_CB, 10e-12)
+    monkeypatch.setenv("COLUMNS", "80")
+    argv = ["measured", path, "--bus", "reset", "--line", "reset", "--rise",
+            f"{t * 1e9:.4f} ns", "--probe", "10pF"]
+    assert main(argv) == 0
+    out = capsys.readouterr().out
+    assert all(len(ln) <= 80 for ln in out.splitlines())
+    assert out.startswith("bus reset, line reset: rise")
+    assert "modelled Cb  20 pF  (pins 15 pF, traces 5 pF" in out
+    assert "agrees with the model" in out
+    assert main([*argv, "--json"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    assert data["verdict"] == "agrees" and data["protocol"] == "gpio"
+    assert data["segment"] is None and data["signal"] == "reset"
+    assert data["cb"] == pytest.approx(GPIO_CB, rel=1e-5)  # the time given to 4 decimals
+    assert data["cb_model"] == pytest.approx(GPIO_CB)
+
+
+def test_gpio_command_slow_reading_disagrees(gpio_design, capsys, monkeypatch):
+    monkeypatch.setenv("COLUMNS", "80")
+    t = 1.5 * _gpio_reading(GPIO_CB, 10e-12)  # derived: 50 % slower than the model's
+    # (the bus's only line when --line is not given)
+    assert main(["measured", str(gpio_design()), "--bus", "reset", "--rise",
+                 f"{t * 1e9:.4f} ns", "--probe", "10pF"]) == 1
+    out = capsys.readouterr().out
+    assert all(len(ln) <= 80 for ln in out.splitlines())
+    assert "more capacitance than the model" in out and "- pins 15 pF" in out
+
+
+@pytest.mark.parametrize(("argv", "words"), [
+    # a push-pull line: its rise is the driver's edge
+    (["--bus", "en", "--line", "enable"],
+     ["no open-drain pin drives this line", "not an RC charge through a pull-up",
+      "this bus has none", "U1.gpio_out drives it push-pull"]),
+    (["--bus", "reset", "--line", "rst"], ["no line of that name on the bus",
+                                           "(got 'rst'); expected reset"]),
+    (["--bus", "reset", "--segment", "reset"], ["a GPIO bus has no segments"]),
+    (["--bus", "two"], ["the bus has several lines: name the one measured; expected "
+                        "--line with one of reset, gpio_out"]),
+    (["--bus", "two", "--line", "reset"], ["the line has no pull-up",
+                                           "lines.reset.pullup"]),
+    (["--bus", "two", "--line", "gpio_out"], ["no open-drain pin drives this line",
+                                              "expected a line an open-drain pin drives "
+                                              "(reset)"]),
+])
+def test_gpio_refusals_exit_2(gpio_design, capsys, monkeypatch, argv, words):
+    monkeypatch.setenv("COLUMNS", "80")
+    assert main(["measured", str(gpio_design()), *argv, "--rise", "250ns",
+                 "--probe", "10pF"]) == 2
+    err = capsys.readouterr().err
+    assert all(len(ln) <= 80 for ln in err.splitlines())
+    err = " ".join(err.split())
+    for w in words:
+        assert w in err
+
+
+def test_i2c_line_stays_a_choice_of_sda_and_scl(design, capsys):
+    with pytest.raises(SystemExit) as got:
+        main(["measured", str(design), "--bus", "i2c0", "--line", "reset", "--rise", "250ns",
+              "--probe", "10pF"])
+    assert got.value.code == 2
+    err = " ".join(capsys.readouterr().err.split())
+    assert "argument --line: invalid choice: 'reset' (choose from 'sda', 'scl')" in err
+    assert main(["measured", str(design), "--bus", "i2c0", "--line", "scl", "--rise",
+                 "250ns", "--probe", "10pF"]) == 1
+    assert "segment i2c0, SCL" in capsys.readouterr().out
+
+
+def test_gpio_contributions_split_traces_cables_and_extra(gpio_design, tmp_path):
+    text = gpio_design().read_text(encoding="utf-8").replace(
+        'lines.reset = { length = "5 cm", capacitance = "1 pF/cm", pullup = "10 kΩ" }',
+        'lines.reset = { sections = [{ length = "3 cm", capacitance = "1 pF/cm" }, '
+        '{ part = "ribbon-cable", length = "20 cm" }], pullup = "10 kΩ", '
+        'extra_capacitance = "4 pF" }')
+    path = tmp_path / "cable.toml"
+    path.write_text(text, encoding="utf-8")
+    got = compare_rise(load_design(path), "reset", 900e-9, 10e-12)
+    # derived: 3 cm x 1 pF/cm; ribbon-cable's 0.5 pF/cm (its part file) x 20 cm; the
+    # line's extra_capacitance; the two pins as in GPIO_CB
+    assert got.contributions == pytest.approx(
+        {"pins": 15e-12, "traces": 3e-12, "cables": 10e-12, "extra": 4e-12})
+    assert got.cb_model == pytest.approx(32e-12)
+    assert got.verdict == "above"
+    assert [r.split(" ")[0] for r in got.revisit[:4]] == ["pins", "cables", "extra", "traces"]

@@ -782,6 +782,68 @@ def _(env):
     return env.capsys.readouterr().err
 
 
+# a GPIO bus's lines measured: an open-drain reset with and without a pull-up, a push-pull
+# line (invented test data, built-in parts)
+_BENCH_GPIO = """
+[[bus]]
+id = "g"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U2", part = "supervisor-od", role = "controller", pin = "reset" },
+  { ref = "U1", part = "mcu-3v3", pin = "reset" },
+]
+lines.reset = { length = "3 cm", geometry = "g"{pullup} }
+lines.gpio_out = { length = "3 cm", geometry = "g" }
+"""
+
+
+def _bench_gpio(env, *argv, pullup=', pullup = "10 kΩ"'):
+    from pinlib.engines.bench import compare_rise
+
+    design = env.design(_BENCH_GPIO.replace("{pullup}", pullup))
+    kw = dict(a.split("=") for a in argv)
+    return _fails(lambda e: compare_rise(design, "g", 1e-6, 1e-12, **kw), env)
+
+
+@case("BENCH_NO_SUCH_LINE")
+def _(env):
+    return _bench_gpio(env, "signal=sda")
+
+
+@case("BENCH_LINE_NEEDED")
+def _(env):
+    return _bench_gpio(env)
+
+
+@case("BENCH_GPIO_SEGMENT")
+def _(env):
+    return _bench_gpio(env, "signal=reset", "segment=g")
+
+
+@case("BENCH_PUSH_PULL_LINE")
+def _(env):
+    return _bench_gpio(env, "signal=gpio_out")
+
+
+@case("BENCH_NO_PULLUP")
+def _(env):
+    return _bench_gpio(env, "signal=reset", pullup="")
+
+
+@case("BENCH_ALSO_PUSH_PULL", lambda: M.BENCH_ALSO_PUSH_PULL.format(
+    who="U1.gpio_out", s="s", signal="reset", them="it"))
+def _(env):
+    # one line: U1's pin key puts its push-pull gpio_out on reset beside the open-drain
+    one = _BENCH_GPIO.replace("{pullup}", ', pullup = "10 kΩ"').replace(
+        'pin = "reset" },\n]', 'pin = "gpio_out" },\n]').replace(
+        'lines.gpio_out = { length = "3 cm", geometry = "g" }\n', "")
+    path = env.write("design.toml", HEAD + one)
+    main(["measured", str(path), "--bus", "g", "--line", "reset", "--rise", "1us",
+          "--probe", "10pF", "--json"])
+    return json.loads(env.capsys.readouterr().out)["notes"][0]
+
+
 # ---------------------------------------------------------------- library: schema and values
 def _pin_value(text: str) -> str:
     return PART.format(id="p").replace('c_in = "8 pF"\n', f"c_in = {text}\n", 1)

@@ -450,6 +450,16 @@ REVISIT_PULLUP = ("the pull-up {rp} on the line: the fitted resistor's value and
                   "inside parts (Cb from a reading scales as 1/Rp)")
 REVISIT_PROBE = ("the measurement: the probe's capacitance, its ground lead, and the levels "
                  "the rise was read between")
+# a GPIO bus's line measured (pinlib/engines/bench.py)
+BENCH_NO_SUCH_LINE = "no line of that name on the bus"
+BENCH_LINE_NEEDED = "the bus has several lines: name the one measured"
+BENCH_GPIO_SEGMENT = "a GPIO bus has no segments"
+BENCH_PUSH_PULL_LINE = ("no open-drain pin drives this line: its rise is a driver's own edge, "
+                        "not an RC charge through a pull-up, so it gives no bus capacitance")
+BENCH_NO_PULLUP = ("the line has no pull-up: an open-drain line without one never rises, so "
+                   "a rise time gives no bus capacitance")
+BENCH_ALSO_PUSH_PULL = ("{who} also drive{s} {signal} push-pull: the reading is a rise "
+                        "through the pull-up only with {them} idle (high impedance)")
 # the command's measuring levels
 LEVELS_FORM = "measuring levels are two numbers, low,high"
 

@@ -9,6 +9,13 @@ the parts' own, nominal), turns the reading into Cb over the pull-up's tolerance
 compares it with the Cb the engine models (every contribution at its maximum).  When the
 two disagree it lists the model's contributions, largest first, as the places to
 revisit.
+
+Two engines state the line: the open-drain engine an I2C or SMBus line (``sda``,
+``scl``: its Cb and pull-up, :func:`pinlib.engines.opendrain.collect`), the push-pull
+engine a GPIO line an open-drain pin drives (its pull-up,
+:func:`pinlib.engines.pushline.open_drain_pullup`, and its figure
+``load_capacitance``: the trace and every pin on the net, the driver's own included).
+The comparison is one for both.
 """
 
 from __future__ import annotations
@@ -17,10 +24,14 @@ from dataclasses import field
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.core.protocols import is_open_drain
 from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
 from pinlib.engines.opendrain import SIGNALS, capacitance_from_rise, collect
-from pinlib.model.design import Design
+from pinlib.engines.pushline import open_drain_pullup
+from pinlib.engines.pushpull import line_inputs
+from pinlib.model.design import Bus, Design
+from pinlib.model.design.objects import PULLUP_TOLERANCE
 
 __all__ = ["READING_TOLERANCE", "BenchComparison", "compare_rise"]
 
@@ -49,8 +60,11 @@ class BenchComparison:
 
     Attributes
     ----------
-    bus, segment, signal : str
-        Where the reading was taken.
+    bus, signal : str
+        Where the reading was taken: the bus and its line (``sda``, ``scl``, a GPIO
+        line's name).
+    segment : str or None
+        The segment of an I2C or SMBus bus; None on a GPIO bus.
     rise, c_probe : float
         The reading and the probe's capacitance. [s], [F]
     levels : tuple of float
@@ -58,19 +72,25 @@ class BenchComparison:
     rp : float
         The pull-up on the line, nominal. [Ω]
     rp_tolerance : float
-        Its tolerance (the design's ``pullup_tolerance``). [1]
+        Its tolerance (the design's ``pullup_tolerance``: the bus's or segment's, a GPIO
+        line's own). [1]
     cb : float
         Bus capacitance from the reading at the nominal pull-up, without the probe. [F]
     cb_low, cb_high : float
         The same over the pull-up's tolerance and the reading's (:data:`READING_TOLERANCE`). [F]
     cb_model : float
-        The engine's Cb of the line, every contribution at its maximum. [F]
+        The engine's Cb of the line, every contribution at its maximum (on a GPIO line
+        its figure ``load_capacitance``). [F]
     contributions : dict
         The model's Cb by contribution (pins, traces, cables, extra). [F]
     verdict : str
         ``"agrees"``, ``"above"`` (the board has more than the model) or ``"below"``.
     revisit : list of str
         What to look at again, most likely first (empty when they agree).
+    protocol : str
+        The bus's protocol (``i2c``, ``smbus``, ``gpio``).
+    notes : list of str
+        What the reading holds under (a GPIO line that push-pull pins also drive).
     """
 
     bus: str
@@ -88,15 +108,19 @@ class BenchComparison:
     contributions: dict
     verdict: str
     revisit: list = field(default_factory=list)
+    protocol: str = "i2c"
+    notes: list = field(default_factory=list)
 
     def to_json(self) -> dict:
         return {
-            "bus": self.bus, "segment": self.segment, "signal": self.signal,
+            "bus": self.bus, "protocol": self.protocol, "segment": self.segment,
+            "signal": self.signal,
             "rise": self.rise, "c_probe": self.c_probe, "levels": list(self.levels),
             "rp": self.rp, "rp_tolerance": self.rp_tolerance, "cb": self.cb,
             "cb_range": [self.cb_low, self.cb_high], "cb_model": self.cb_model,
             "contributions": dict(self.contributions), "verdict": self.verdict,
-            "revisit": list(self.revisit), "reading_tolerance": READING_TOLERANCE,
+            "revisit": list(self.revisit), "notes": list(self.notes),
+            "reading_tolerance": READING_TOLERANCE,
             "source": "RC rise t = Rp (Cb + C_probe) ln((1 - lo)/(1 - hi)), UM10204 rev. 6 §7.1",
         }
 
@@ -104,8 +128,10 @@ class BenchComparison:
         """The comparison as text, each line wrapped to ``width`` (None: no limit)."""
         lo, hi = self.levels
         f = format_si
+        where = (f"line {self.signal}" if self.segment is None else
+                 f"segment {self.segment}, {self.signal.upper()}")
         lines = [
-            f"bus {self.bus}, segment {self.segment}, {self.signal.upper()}: rise "
+            f"bus {self.bus}, {where}: rise "
             f"{f(self.rise, 's')} ({lo:.0%}-{hi:.0%}) with a {f(self.c_probe, 'F')} probe, "
             f"Rp {f(self.rp, 'Ω')} (±{self.rp_tolerance:.0%})",
             f"  measured Cb  {f(self.cb, 'F')}  (range {f(self.cb_low, 'F')} to "
@@ -116,6 +142,7 @@ class BenchComparison:
         ]
         verdict = {"agrees": M.BENCH_AGREES, "above": M.BENCH_ABOVE,
                    "below": M.BENCH_BELOW}[self.verdict]
+        lines += [f"  note: {n}" for n in self.notes]
         lines.append("  " + verdict)
         lines += [f"  - {r}" for r in self.revisit]
         if width is not None:
@@ -127,7 +154,7 @@ class BenchComparison:
 
 
 def compare_rise(design: Design, bus_id: str, rise: float, c_probe: float, *,
-                 levels: tuple[float, float] = (0.3, 0.7), signal: str = "sda",
+                 levels: tuple[float, float] = (0.3, 0.7), signal: str | None = None,
                  segment: str | None = None) -> BenchComparison:
     """Compare a rise time measured on an open-drain line with the modelled Cb.
 
@@ -136,23 +163,82 @@ def compare_rise(design: Design, bus_id: str, rise: float, c_probe: float, *,
     design : Design
         The loaded design.
     bus_id : str
-        An ``i2c`` or ``smbus`` bus of the design.
+        An ``i2c`` or ``smbus`` bus of the design, or a ``gpio`` bus with a line an
+        open-drain pin drives.
     rise : float
         The rise time read between ``levels``. [s]
     c_probe : float
         The probe's capacitance. [F]
     levels : tuple of float
         The measuring levels as fractions of the rail (``(0.3, 0.7)``). [1]
-    signal : str
-        ``"sda"`` or ``"scl"``.
+    signal : str, optional
+        ``"sda"`` (the default) or ``"scl"`` on an I2C or SMBus bus; on a GPIO bus the
+        line's name (by default its only line).
     segment : str, optional
-        The segment of a bus with a bridging part (its first by default).
+        The segment of a bus with a bridging part (its first by default); a GPIO bus
+        has none.
+
+    Raises
+    ------
+    InputError
+        An unknown bus, line or segment; a bus of no open-drain line (SPI); a GPIO line
+        no open-drain pin drives, or one without a pull-up; a reading the pull-up and the
+        probe cannot give.
     """
     try:
         bus = design.bus(bus_id)
     except KeyError:
         raise InputError(M.NO_SUCH_BUS, field="--bus", value=bus_id,
                          expected=", ".join(b.id for b in design.buses)) from None
+    if is_open_drain(bus.protocol):
+        got = _open_drain_line(bus, design, "sda" if signal is None else signal, segment)
+    elif bus.protocol == "gpio":
+        got = _gpio_line(bus, design, signal, segment)
+    else:
+        raise InputError(M.NOT_OPEN_DRAIN_BUS, field="--bus", value=f"{bus.id} ({bus.protocol})",
+                         expected="an i2c or smbus bus, or a gpio bus's line an open-drain "
+                                  "pin drives")
+    rp, tol = got.rp, got.tolerance
+    lo, hi = levels
+    cb = _from_reading(rise, rp, c_probe, lo, hi)
+    # a larger pull-up charges slower: the same reading then means less capacitance
+    cb_low, _ = capacitance_from_rise(rise * (1 - READING_TOLERANCE), rp * (1 + tol),
+                                      0.0, lo=lo, hi=hi)
+    cb_high, _ = capacitance_from_rise(rise * (1 + READING_TOLERANCE), rp * (1 - tol),
+                                       0.0, lo=lo, hi=hi)
+    cb_low, cb_high = max(float(cb_low) - c_probe, 0.0), float(cb_high) - c_probe
+    model, parts = got.cb_model, got.contributions
+    verdict = "agrees" if cb_low <= model <= cb_high else (
+        "above" if cb_low > model else "below")
+    revisit: list[str] = []
+    if verdict != "agrees":
+        for name, value in sorted(parts.items(), key=lambda kv: -kv[1]):
+            if value > 0 or (verdict == "above" and name == "extra"):
+                revisit.append(_REVISIT[name].format(value=_cap(value)))
+        revisit.append(M.REVISIT_PULLUP.format(rp=format_si(rp, "Ω")))
+        revisit.append(M.REVISIT_PROBE)
+    return BenchComparison(bus.id, got.segment, got.signal, float(rise), float(c_probe),
+                           (float(lo), float(hi)), float(rp), tol, float(cb), cb_low, cb_high,
+                           model, parts, verdict, revisit, protocol=bus.protocol,
+                           notes=list(got.notes))
+
+
+@value_class(frozen=True)
+class _Line:
+    """What an engine states of the line measured: where it is, its pull-up (nominal)
+    and that pull-up's tolerance, its modelled Cb and Cb's contributions."""
+
+    segment: str | None
+    signal: str
+    rp: float
+    tolerance: float
+    cb_model: float
+    contributions: dict
+    notes: tuple = ()
+
+
+def _open_drain_line(bus: Bus, design: Design, signal: str, segment: str | None) -> _Line:
+    """An I2C or SMBus line, as the open-drain engine gathers it."""
     if signal not in SIGNALS:
         raise InputError(M.UNKNOWN_OPEN_DRAIN_LINE, field="--line", value=signal,
                          expected=" or ".join(SIGNALS))
@@ -163,30 +249,72 @@ def compare_rise(design: Design, bus_id: str, rise: float, c_probe: float, *,
         raise InputError(M.NO_SUCH_SEGMENT, field="--segment", value=segment,
                          expected=", ".join(s.segment.id for s in seg_ins))
     line = seg_in.lines[signal]
-    rp = seg_in.r_eff(signal)
-    tol = float(seg_in.segment.pullup_tolerance)
-    lo, hi = levels
-    cb = _from_reading(rise, rp, c_probe, lo, hi)
-    # a larger pull-up charges slower: the same reading then means less capacitance
-    cb_low, _ = capacitance_from_rise(rise * (1 - READING_TOLERANCE), rp * (1 + tol),
-                                      0.0, lo=lo, hi=hi)
-    cb_high, _ = capacitance_from_rise(rise * (1 + READING_TOLERANCE), rp * (1 - tol),
-                                       0.0, lo=lo, hi=hi)
-    cb_low, cb_high = max(float(cb_low) - c_probe, 0.0), float(cb_high) - c_probe
-    model = float(line.cb)
-    parts = {k: float(v) for k, v in line.cb_parts.items()}
-    verdict = "agrees" if cb_low <= model <= cb_high else (
-        "above" if cb_low > model else "below")
-    revisit: list[str] = []
-    if verdict != "agrees":
-        for name, value in sorted(parts.items(), key=lambda kv: -kv[1]):
-            if value > 0 or (verdict == "above" and name == "extra"):
-                revisit.append(_REVISIT[name].format(value=_cap(value)))
-        revisit.append(M.REVISIT_PULLUP.format(rp=format_si(rp, "Ω")))
-        revisit.append(M.REVISIT_PROBE)
-    return BenchComparison(bus.id, seg_in.segment.id, signal, float(rise), float(c_probe),
-                           (float(lo), float(hi)), float(rp), tol, float(cb), cb_low, cb_high,
-                           model, parts, verdict, revisit)
+    return _Line(seg_in.segment.id, signal, float(seg_in.r_eff(signal)),
+                 float(seg_in.segment.pullup_tolerance), float(line.cb),
+                 {k: float(v) for k, v in line.cb_parts.items()})
+
+
+def _gpio_line(bus: Bus, design: Design, signal: str | None, segment: str | None) -> _Line:
+    """A GPIO line an open-drain pin drives, as the push-pull engine analyses it: the
+    pull-up its open-drain drivers pull against and its figure ``load_capacitance``."""
+    names = list(bus.lines)
+    listed = ", ".join(names) or "none (the bus routes no line)"
+    if segment is not None:
+        raise InputError(M.BENCH_GPIO_SEGMENT, field="--segment", value=segment,
+                         expected=f"no --segment; --line names the line ({listed})")
+    if signal is None:
+        if len(names) != 1:
+            raise InputError(M.BENCH_LINE_NEEDED, field="--line",
+                             expected=f"--line with one of {listed}")
+        signal = names[0]
+    if signal not in bus.lines:
+        raise InputError(M.BENCH_NO_SUCH_LINE, field="--line", value=signal, expected=listed)
+    inputs = {x.signal: x for x in line_inputs(bus, design)}
+    li = inputs[signal]
+    od = [d for d in li.drivers if d.pin.drive == "open-drain"]
+    pp = [d for d in li.drivers if d.pin.drive != "open-drain"]
+    if not od:
+        others = [s for s, x in inputs.items()
+                  if any(d.pin.drive == "open-drain" for d in x.drivers)]
+        raise InputError(M.BENCH_PUSH_PULL_LINE, field="--line", value=signal,
+                         expected="a line an open-drain pin drives"
+                                  + (f" ({', '.join(others)})" if others else
+                                     ": this bus has none"),
+                         hint=f"{_who(pp)} drive{'s' if len(pp) == 1 else ''} it push-pull")
+    # every open-drain driver pulls against the same pull-ups (all the net's but its
+    # own, and its own): the first one's
+    rp, _ = open_drain_pullup(li.line, li.loads, od[0])
+    if rp is None:
+        raise InputError(M.BENCH_NO_PULLUP, field="--line", value=signal,
+                         expected=f"a pull-up on the line (lines.{signal}.pullup), or a part "
+                                  "carrying one on its pin",
+                         hint=f"{_who(od)} drive{'s' if len(od) == 1 else ''} it open-drain")
+    tol = PULLUP_TOLERANCE if li.line.pullup_tolerance is None else li.line.pullup_tolerance
+    a = li.analyse()
+    fig = a.result.figures.get("load_capacitance")
+    if fig is None or fig.value is None:
+        raise RuntimeError(f"bench: the push-pull engine gave line {signal} of bus {bus.id} "
+                           "no load_capacitance")
+    cables = sum(st.c for sec, st in zip(li.line.sections, a.stretches, strict=True)
+                 if sec.part_id)
+    parts = {"pins": float(sum(p.c_in for p in li.loads)),
+             "traces": float(a.trace_c - cables), "cables": float(cables),
+             "extra": float(li.line.extra_capacitance)}
+    total = float(fig.value)
+    if abs(sum(parts.values()) - total) > 1e-9 * max(total, 1e-15):
+        raise RuntimeError(f"bench: line {signal} of bus {bus.id}: the contributions "
+                           f"{parts} do not add up to load_capacitance {total!r}")
+    notes = ()
+    if pp:
+        notes = (M.BENCH_ALSO_PUSH_PULL.format(
+            who=_who(pp), s="s" if len(pp) == 1 else "", signal=signal,
+            them="it" if len(pp) == 1 else "them"),)
+    return _Line(None, signal, float(rp), float(tol), total, parts, notes)
+
+
+def _who(endpoints) -> str:
+    """The pins named as the engine labels them (``U2.reset``)."""
+    return ", ".join(e.label for e in endpoints)
 
 
 def _from_reading(rise: float, rp: float, c_probe: float, lo: float, hi: float) -> float:

@@ -18,14 +18,18 @@ examples:
       --probe 12pF --levels 10,90
   pinlib measured board.toml --bus sense --segment sense-2 --rise 400ns \\
       --probe 10pF --json
+  pinlib measured board.toml --bus reset --line reset --rise 600ns \\
+      --probe 10pF
 
-The rise of an open-drain line (I2C, SMBus) is an RC charge through the pull-up, so a
-rise read between two levels with a probe of known capacitance gives the line's bus
-capacitance. The command takes the pull-up the design puts on the line (its resistor in
-parallel with any inside the parts), turns the reading into Cb over the pull-up's
-tolerance and a 10 % reading tolerance (common practice), and compares it with the Cb the
-model adds up. When they disagree it lists the contributions to revisit, most likely
-first.
+The rise of an open-drain line (I2C, SMBus, or a GPIO line an open-drain pin drives) is
+an RC charge through the pull-up, so a rise read between two levels with a probe of
+known capacitance gives the line's bus capacitance. The command takes the pull-up the
+design puts on the line (its resistor in parallel with any inside the parts), turns the
+reading into Cb over the pull-up's tolerance and a 10 % reading tolerance (common
+practice), and compares it with the Cb the model adds up (on a GPIO line its load
+capacitance: the trace and every pin on it). When they disagree it lists the
+contributions to revisit, most likely first. A GPIO line only push-pull pins drive is
+refused: its rise is the driver's own edge.
 
 exit status: 0 the measurement agrees with the model, 1 it does not, 2 bad input.
 """
@@ -51,14 +55,17 @@ def add_parser(sub) -> None:
     p = sub.add_parser(
         "measured",
         help=SUMMARIES["measured"],
-        description="Turn a rise time measured on an open-drain line (with the probe's "
-                    "capacitance and the measuring levels) into bus capacitance, and compare "
-                    "it with the design's modelled Cb.",
+        description="Turn a rise time measured on an open-drain line (I2C, SMBus, or a GPIO "
+                    "line an open-drain pin drives; with the probe's capacitance and the "
+                    "measuring levels) into bus capacitance, and compare it with the "
+                    "design's modelled Cb.",
         epilog=EXAMPLES, formatter_class=HelpLayout)
     p.add_argument("design", metavar="DESIGN", help="the design file (.toml)")
-    p.add_argument("--bus", required=True, metavar="ID", help="the bus measured (i2c, smbus)")
-    p.add_argument("--line", default="sda", choices=["sda", "scl"],
-                   help="the line measured (default sda)")
+    p.add_argument("--bus", required=True, metavar="ID",
+                   help="the bus measured (i2c, smbus, gpio)")
+    p.add_argument("--line", metavar="LINE",
+                   help="the line measured: sda (default) or scl on an i2c or smbus bus; on "
+                        "a gpio bus the line's name (default: the bus's only line)")
     p.add_argument("--segment", metavar="ID",
                    help="the segment measured, on a bus with a bridging part (default: first)")
     p.add_argument("--rise", required=True, metavar="TIME",
@@ -71,7 +78,7 @@ def add_parser(sub) -> None:
     p.add_argument("--library", metavar="DIR", action="append", default=[],
                    help="a team library folder (repeatable; takes precedence over the design's)")
     p.add_argument("--json", action="store_true", help="print the comparison as JSON")
-    p.set_defaults(run=run)
+    p.set_defaults(run=run, usage_error=p.error)
 
 
 def run(args) -> int:
@@ -82,6 +89,7 @@ def run(args) -> int:
     rise = parse(args.rise, "s", field="--rise")
     probe = parse(args.probe, "F", field="--probe")
     design = load_design(args.design, library_folders=args.library)
+    _check_open_drain_line(args, design)
     got = compare_rise(design, args.bus, rise, probe, levels=args.levels, signal=args.line,
                        segment=args.segment)
     if args.json:
@@ -93,3 +101,20 @@ def run(args) -> int:
 
         sys.stdout.write(got.format_text(width=table_width()))
     return 0 if got.verdict == "agrees" else 1
+
+
+def _check_open_drain_line(args, design) -> None:
+    """On an I2C or SMBus bus ``--line`` is ``sda`` or ``scl``, refused as a choice of
+    the two (the option's usage error, exit 2); a GPIO bus's lines are named freely, so
+    the option takes any name and the bus decides (:func:`compare_rise` refuses one it
+    has not)."""
+    from pinlib.core.protocols import is_open_drain
+    from pinlib.engines.opendrain import SIGNALS
+
+    bus = next((b for b in design.buses if b.id == args.bus), None)
+    if bus is None or args.line is None or not is_open_drain(bus.protocol):
+        return
+    if args.line not in SIGNALS:
+        choices = ", ".join(repr(s) for s in SIGNALS)
+        args.usage_error(f"argument --line: invalid choice: {args.line!r} "
+                         f"(choose from {choices})")

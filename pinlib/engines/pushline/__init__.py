@@ -91,6 +91,7 @@ from pinlib.engines.pushline.drive import (  # noqa: F401
 from pinlib.engines.pushline.line import (  # noqa: F401
     LineInputs,
     analyse_line,
+    open_drain_pullup,
 )
 from pinlib.engines.pushline.pins import (  # noqa: F401
     Endpoint,
@@ -152,6 +153,7 @@ __all__ = [
     "drive_case",
     "auto_series_resistor",
     "analyse_line",
+    "open_drain_pullup",
     "LineInputs",
     "endpoint",
     "device_supply",

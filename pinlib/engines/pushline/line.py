@@ -385,6 +385,31 @@ def line_stretches(line: Line) -> list:
     return list(got)
 
 
+def open_drain_pullup(line: Line, loads: Sequence[Endpoint],
+                      driver: Endpoint) -> tuple[float | None, float]:
+    """The pull-up an open-drain ``driver`` on ``line`` pulls against, and its rail.
+
+    Parameters
+    ----------
+    line : Line
+        The line of the design (its own ``pullup`` and ``pullup_rail``). [1]
+    loads : sequence of Endpoint
+        Every pin on the line (the driver's own among them or not). [1]
+    driver : Endpoint
+        The open-drain pin. [1]
+
+    Returns
+    -------
+    tuple
+        The line's resistor in parallel with every pull-up the pins carry (``pullup``,
+        or ``pullup_internal`` of a device with ``internal_pullups``), nominal, or None
+        when there is none [Ω]; the rail they pull to (the lowest of theirs) [V].
+    """
+    own = line.pullup
+    return _pullups(_others(loads, driver), driver,
+                    None if own is None else (float(own), float(line.pullup_rail or driver.vdd)))
+
+
 def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
     """Fill ``a.models``; open-drain drivers pull against the net's pull-ups.  A driver
     with no pull-up to pull against fails and leaves ``a.drivers``.  Returns the
@@ -394,9 +419,7 @@ def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
     for d in a.drivers:
         if d.pin.drive == "open-drain":
             own = a.line.pullup
-            rp, rail = _pullups(_others(a.loads, d), d,
-                                None if own is None else
-                                (float(own), float(a.line.pullup_rail or d.vdd)))
+            rp, rail = open_drain_pullup(a.line, a.loads, d)
             if rp is None:
                 res.add(Check("pull-up", "fail", None, None, "Ω", None,
                               "an open-drain line needs a pull-up (common practice)",
