@@ -5,6 +5,7 @@ from __future__ import annotations
 import datetime as dt
 import os
 import random
+import re
 import signal
 import subprocess
 import sys
@@ -66,7 +67,15 @@ c_in = "8 pF"
 f_max = "1 MHz"
 """
 
-TODAY = dt.date.today().isoformat()
+
+
+def _recorded(text: str, since: dt.date) -> str:
+    """The date a written file records, held to a date of the test's own run (from
+    ``since`` to now): a run across midnight may record either day."""
+    got = re.search(r"recorded = (\d{4}-\d{2}-\d{2})", text)
+    assert got is not None, text
+    assert since <= dt.date.fromisoformat(got.group(1)) <= dt.date.today()
+    return got.group(1)
 
 
 @pytest.fixture
@@ -92,11 +101,13 @@ def test_round_trip_keeps_comments_and_order(lib_dirs):
     _, team = lib_dirs
     path = team / "child.toml"
     lib = load(team)
+    since = dt.date.today()
     assert record_value(lib, "child", "sda.c_in", "6 pF", "rev C, table 7.5", typ="4 pF") == path
     record_value(lib, "child", "scl.v_il", "0.3 VDD", "rev C, table 7.5")
     record_value(lib, "child", "timing.t_hold", "5 ns", "rev C, table 9", basis="measured")
     record_value(lib, "child", "supply.min", "1.8 V", "rev C, p. 1")
-    expected = CHILD.replace("recorded = 2020-01-01", f"recorded = {TODAY}").replace(
+    today = _recorded(path.read_text(encoding="utf-8"), since)
+    expected = CHILD.replace("recorded = 2020-01-01", f"recorded = {today}").replace(
         'c_in = "8 pF"   # table 5',
         'c_in = { value = "6 pF", basis = "datasheet", source = "rev C, table 7.5", '
         'typ = "4 pF" }   # table 5').replace(
@@ -115,16 +126,17 @@ def test_round_trip_keeps_comments_and_order(lib_dirs):
         6e-12, "datasheet", "rev C, table 7.5", 4e-12, "child")
     assert part.timing.t_hold.basis == "measured"
     assert (part.supply.min.value, part.supply.max.value) == (1.8, 5.5)
-    assert part.provenance.recorded == dt.date.today()
+    assert part.provenance.recorded == dt.date.fromisoformat(today)
 
 
 def test_record_into_a_new_part_creates_its_tables(lib_dirs):
     _, team = lib_dirs
     lib = load(team)
+    since = dt.date.today()
     path = new_part(lib, "child-b", "base", team, title="Second source")
     text = path.read_text(encoding="utf-8")
     assert 'extends = "base"' in text and 'title = "Second source"' in text
-    assert 'category = "sensor"' in text and f"recorded = {TODAY}" in text
+    assert 'category = "sensor"' in text and _recorded(text, since)
     lib = load(team)
     assert lib.parts["child-b"].pins["sda"].c_in.origin == "base"
     record_value(lib, "child-b", "sda.c_in", "7 pF", "rev 2")
@@ -549,8 +561,9 @@ def test_a_file_without_blank_lines_between_tables_keeps_its_layout(lib_dirs):
     tight = "".join(x for x in CHILD.splitlines(keepends=True)[:7]) + "".join(
         x for x in CHILD.splitlines(keepends=True)[7:] if x.strip() and x[0] != "#")
     (team / "child.toml").write_text(tight, encoding="utf-8")
+    since = dt.date.today()
     record_value(load(team), "child", "sda.v_il", "0.3 VDD", "rev A")
     text = (team / "child.toml").read_text(encoding="utf-8")
     new = 'v_il = { value = "0.3 VDD", basis = "datasheet", source = "rev A" }\n'
     assert new + "[pins.scl]" in text
-    assert text.replace(new, "") == tight.replace("2020-01-01", TODAY)
+    assert text.replace(new, "") == tight.replace("2020-01-01", _recorded(text, since))
