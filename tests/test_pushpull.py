@@ -903,7 +903,7 @@ def test_an_input_transition_time_is_checked_at_its_receiver(tmp_path, limit, st
     assert c.limit == (100e-9 if limit == "100 ns" else 1e-6)
     assert c.status == status and c.subject == "U2"
     assert "slow-in t_transition_max: test data, invented" == c.source
-    assert ("pullup" in c.fix) if status == "fail" else c.fix is None
+    assert ("lines.reset.pullup" in c.fix) if status == "fail" else c.fix is None
     # on a route, the edge at the receiver's own point (the same RC rise: 10 kΩ is far
     # above the trace's Z0, so the line charges as one capacitance)
     d = _builtin_design(tmp_path, 'library = ["parts"]\n\n' + _OD_RESET.format(

@@ -36,7 +36,7 @@ def _si_checks(a: LineAnalysis, cases: dict, clock: float | None, clock_line: bo
             continue
         checks.append(_ringing_check(rx, cases, v_il, v_ih, clock_line))
         if rx.pin.t_transition_max is not None:
-            checks.append(_transition_check(rx, cases, a.net is not None, warn))
+            checks.append(_transition_check(rx, cases, a.net is not None, warn, a.signal))
         for ref, c in cases.items():
             if ref != rx.ref:
                 checks += _level_checks(rx, drivers[ref], c, v_il, v_ih, warn,
@@ -241,7 +241,8 @@ def _level_checks(rx: Endpoint, d: Endpoint, c, v_il: float, v_ih: float,
     ]
 
 
-def _transition_check(rx: Endpoint, cases: dict, routed: bool, warn: float) -> Check:
+def _transition_check(rx: Endpoint, cases: dict, routed: bool, warn: float,
+                      signal: str) -> Check:
     """The slowest 10-90 % edge at a receiver (from every other driver, at its own point
     on a route) against the input transition time its part states."""
     limit = rx.level("t_transition_max")
@@ -252,8 +253,8 @@ def _transition_check(rx: Endpoint, cases: dict, routed: bool, warn: float) -> C
     fix = None
     if edge > limit:
         drv = cases[by].driver if by is not None else None
-        fix = ("a smaller pull-up speeds the rise (the line's pullup), or a receiver with "
-               "a Schmitt-trigger input" if drv is not None and drv.pin.drive == "open-drain"
+        fix = (f"a smaller pull-up speeds the rise (lines.{signal}.pullup), or a receiver "
+               "with a Schmitt-trigger input" if drv is not None and drv.pin.drive == "open-drain"
                else "a stronger driver or less load speeds the edge (a series resistor "
                     "slows it), or a receiver with a Schmitt-trigger input")
     many = sum(ref != rx.ref for ref in cases) > 1
