@@ -241,15 +241,22 @@ def _level_checks(rx: Endpoint, d: Endpoint, c, v_il: float, v_ih: float,
     ]
 
 
+def _slowest_edge(cases: dict, rx: Endpoint | None = None) -> tuple[float, str | None]:
+    """The slowest 10-90 % edge (rise or fall) and the driver whose edge it is: at the far
+    end (``rx`` None, every driver), or on a route at receiver ``rx``'s own point (every
+    other driver); ``(0.0, None)`` when no driver is left."""
+    edges = [(max(c.wave_at(rx.ref, "rise").t_edge, c.wave_at(rx.ref, "fall").t_edge)
+              if rx is not None else max(c.rise.t_edge, c.fall.t_edge), ref)
+             for ref, c in cases.items() if rx is None or ref != rx.ref]
+    return max(edges, default=(0.0, None))
+
+
 def _transition_check(rx: Endpoint, cases: dict, routed: bool, warn: float,
                       signal: str) -> Check:
     """The slowest 10-90 % edge at a receiver (from every other driver, at its own point
     on a route) against the input transition time its part states."""
     limit = rx.level("t_transition_max")
-    edges = [(max(c.wave_at(rx.ref, "rise").t_edge, c.wave_at(rx.ref, "fall").t_edge)
-              if routed else max(c.rise.t_edge, c.fall.t_edge), ref)
-             for ref, c in cases.items() if ref != rx.ref]
-    edge, by = max(edges, default=(0.0, None))
+    edge, by = _slowest_edge(cases, rx if routed else None)
     fix = None
     if edge > limit:
         drv = cases[by].driver if by is not None else None
@@ -270,13 +277,8 @@ def _transition_check(rx: Endpoint, cases: dict, routed: bool, warn: float,
 def _edge_check(cases: dict, clock: float, warn: float, rx: Endpoint | None = None) -> Check:
     """The slowest 10-90 % edge against a fraction of the clock period (a rule of thumb):
     at the far end, or on a route at one receiver's point (from every other driver)."""
-    if rx is None:
-        edge = max(max(c.rise.t_edge, c.fall.t_edge) for c in cases.values())
-        where, subject = "the far end", None
-    else:
-        edge = max((max(c.wave_at(rx.ref, "rise").t_edge, c.wave_at(rx.ref, "fall").t_edge)
-                    for ref, c in cases.items() if ref != rx.ref), default=0.0)
-        where, subject = rx.label, rx.ref
+    edge = _slowest_edge(cases, rx)[0]
+    where, subject = ("the far end", None) if rx is None else (rx.label, rx.ref)
     limit = EDGE_FRACTION / clock
     return rule_of_thumb(check_max(
         "edge-time", edge, limit, "s", EDGE_RULE,
