@@ -405,9 +405,15 @@ def open_drain_pullup(line: Line, loads: Sequence[Endpoint],
         or ``pullup_internal`` of a device with ``internal_pullups``), nominal, or None
         when there is none [Ω]; the rail they pull to (the lowest of theirs) [V].
     """
-    own = line.pullup
-    return _pullups(_others(loads, driver), driver,
-                    None if own is None else (float(own), float(line.pullup_rail or driver.vdd)))
+    return _pullups(_others(loads, driver), driver, _own_pullup(line, driver))
+
+
+def _own_pullup(line: Line, driver: Endpoint) -> tuple[float, float] | None:
+    """The line's own resistor and the rail it pulls to (the bus supply, set where the
+    line is analysed; the driver's rail where it is not), or None. [Ω, V]"""
+    if line.pullup is None:
+        return None
+    return float(line.pullup), float(line.pullup_rail or driver.vdd)
 
 
 def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
@@ -418,7 +424,7 @@ def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
     stuck = []
     for d in a.drivers:
         if d.pin.drive == "open-drain":
-            own = a.line.pullup
+            own = _own_pullup(a.line, d)
             rp, rail = open_drain_pullup(a.line, a.loads, d)
             if rp is None:
                 res.add(Check("pull-up", "fail", None, None, "Ω", None,
@@ -433,10 +439,10 @@ def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
                 continue
             pullup[d.ref] = (rp, rail)
             if own is not None and not any(n.startswith("pull-up:") for n in res.notes):
-                both = "" if abs(rp - float(own)) <= 1e-9 * rp else (
+                r_own, to = own
+                both = "" if abs(rp - r_own) <= 1e-9 * rp else (
                     f"; with the pull-ups that parts on the line carry, {format_si(rp, 'Ω')}")
-                to = float(a.line.pullup_rail or d.vdd)
-                res.notes.append(f"pull-up: {format_si(float(own), 'Ω')} to the bus supply "
+                res.notes.append(f"pull-up: {format_si(r_own, 'Ω')} to the bus supply "
                                  f"{format_si(to, 'V')} (lines.{a.signal}.pullup){both}")
             a.models[d.ref] = _open_drain_model(d.pin, d.vdd, rp, res.notes, d.label)
         else:
