@@ -78,9 +78,7 @@ def _segment(rb: RawBus, rs, sloc, si: int, count: int, device, sections, cables
     seg_id = rs.id or (rb.id if count == 1 else f"{rb.id}-{si + 1}")
     cab = cables(rs.cables or (rb.cables if rs is not rb else ()), sloc + ("cables",))
     trace = pick("trace")
-    own = None if trace is None else ("pullup" if trace.pullup is not None else
-                                      "pullup_tolerance" if trace.pullup_tolerance is not None
-                                      else None)
+    own = None if trace is None else _line_pullup_key(trace)
     if own:  # a GPIO line's key; here the bus's
         # (a bus with segments gives no trace of its own: the segment's is at sloc)
         raise err(M.LINE_PULLUP_NOT_GPIO, sloc + ("trace", own),
@@ -163,10 +161,10 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
             alike = look_alikes(points, devices, rb.protocol, sig, len(rb.lines), homes)
         else:
             secs, points = sections(rt, loc), ()
-        for key in ("pullup", "pullup_tolerance"):
-            if getattr(rt, key) is not None and rb.protocol != "gpio":
-                raise err(M.LINE_PULLUP_NOT_GPIO, loc + (key,),
-                          hint="an SPI line is driven push-pull both ways")
+        key = _line_pullup_key(rt)
+        if key and rb.protocol != "gpio":
+            raise err(M.LINE_PULLUP_NOT_GPIO, loc + (key,),
+                      hint="an SPI line is driven push-pull both ways")
         if rt.pullup_tolerance is not None and rt.pullup is None:
             raise err(M.LINE_PULLUP_TOLERANCE_ALONE, loc + ("pullup_tolerance",),
                       expected='pullup = "10 kΩ" beside it, or no pullup_tolerance')
@@ -192,6 +190,13 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
     return Bus(rb.id, rb.protocol, None, rb.clock, rb.supply, rb.supply_tolerance or 0.0, (),
                devices, lines, rb.spi_mode, rb.title, rb.capacitance_tolerance or 0.0,
                rb.length_tolerance or 0.0, bloc)
+
+
+def _line_pullup_key(trace) -> str | None:
+    """The first key of a GPIO line's own pull-up a trace writes (``pullup``, then
+    ``pullup_tolerance``), or None: only a GPIO line takes them."""
+    return next((k for k in ("pullup", "pullup_tolerance") if getattr(trace, k) is not None),
+                None)
 
 
 def _no_device_pin(devices, err) -> None:
