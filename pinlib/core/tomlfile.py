@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import contextlib
 import errno
+import json
 import os
 import re
 import stat
@@ -33,7 +34,8 @@ try:
 except ImportError:  # pragma: no cover - tomli is a dependency; the standard library's
     import tomllib
 
-__all__ = ["load", "line_index", "line_of", "dotted", "atomic_write", "refuse_irregular_target",
+__all__ = ["load", "line_index", "line_of", "dotted", "toml_key", "atomic_write",
+           "refuse_irregular_target",
            "file_lock", "BOM", "UTF8_BOM"]
 
 _KEY = r'(?:[A-Za-z0-9_-]+|"[^"]*"|\'[^\']*\')'
@@ -135,6 +137,13 @@ def dotted(loc) -> str:
     for p in loc:
         out += f"[{p}]" if isinstance(p, int) else (f".{p}" if out else str(p))
     return out
+
+
+def toml_key(name: str) -> str:
+    """``name`` written as a TOML key: bare where TOML allows (ASCII letters and digits,
+    ``_`` and ``-``), else a quoted string (JSON's escapes are TOML's)."""
+    bare = bool(name) and all(c.isascii() and (c.isalnum() or c in "_-") for c in name)
+    return name if bare else json.dumps(name, ensure_ascii=False)
 
 
 def line_of(index: dict[tuple, int], path) -> int | None:

@@ -18,6 +18,7 @@ from pinlib.core import messages as M
 from pinlib.core.errors import LibraryError
 from pinlib.core.protocols import PIN_FUNCTIONS, PROTOCOLS
 from pinlib.core.quantity import format_si
+from pinlib.core.tomlfile import toml_key
 from pinlib.core.valueclass import value_class
 from pinlib.library import loader
 from pinlib.library.ibis import IbisFile
@@ -139,7 +140,7 @@ def part_text(ibis: IbisFile, component: str, pins: dict[str, str], new_id: str,
         if key in used:  # a second pin of one function (CS0, CS1): named after itself
             key = pin.lower()
         used.add(key)
-        head = f"pins.{_toml_key(key)}"
+        head = f"pins.{toml_key(key)}"
         body += ["", f"[{head}]", f"function = {_toml_string(function)}",
                  f"drive = {_toml_string(drive)}"]
         body += [f"{f} = {_value(values[f])}" for f in _ORDER if f in values]
@@ -221,10 +222,6 @@ def _supply_line(ibis, model, vr) -> str:
     return (f"supply = {{ min = {{ value = {_toml_string(format_si(lo, 'V'))}, basis = \"ibis\", "
             f"source = {src} }}, max = {{ value = {_toml_string(format_si(hi, 'V'))}, "
             f"basis = \"ibis\", source = {src} }}, typ = {_toml_string(format_si(vr.typ, 'V'))} }}")
-
-
-def _toml_key(key: str) -> str:
-    return key if key.replace("-", "").replace("_", "").isalnum() else _toml_string(key)
 
 
 def import_part(library: loader.Library, ibis: IbisFile, component: str,

@@ -22,6 +22,7 @@ import json
 
 from pinlib.core import protocols
 from pinlib.core.quantity import format_si
+from pinlib.core.tomlfile import toml_key
 from pinlib.core.valueclass import value_class
 from pinlib.core.wrapping import wrap
 from pinlib.standards.i2c import I2C_MODE_NAMES
@@ -107,11 +108,14 @@ def _groups() -> list[list]:
     return list(out.values())
 
 
-def _device_lines(members, controller) -> list[str]:
+def _device_lines(members, controller, pin: str | None = None) -> list[str]:
+    """The ``devices`` array of ``members`` ((placement, part) pairs); ``pin``: the pin
+    each places on a GPIO line."""
+    on = "" if pin is None else f", pin = {_toml_string(pin)}"
     out = ["devices = ["]
     for place, _part in members:
         role = ', role = "controller"' if place is controller else ""
-        out.append(f'  {{ ref = {_toml_string(place.ref)}, part = "{place.part_id}"{role} }},')
+        out.append(f'  {{ ref = {_toml_string(place.ref)}, part = "{place.part_id}"{role}{on} }},')
     out.append("]")
     return out
 
@@ -247,25 +251,15 @@ def _gpio_bus(name: str, pins: list, taken: set[str]) -> list[str]:
            "[[bus]]", f"id = {_toml_string(bus_id)}", 'protocol = "gpio"',
            _noted(f'supply = "{format_si(_supply(driver[1]), "V")}"',
                   "the rail of the I/O: check it"),
-           'supply_tolerance = "5 %"', "devices = ["]
-    for pl, _, _ in members:
-        role = ', role = "controller"' if pl is driver[0] else ""
-        out.append(f'  {{ ref = {_toml_string(pl.ref)}, part = "{pl.part_id}"{role}, '
-                   f"pin = {_toml_string(name)} }},")
-    out.append("]")
-    line = f'lines.{_toml_key(name)} = {{ length = "5 cm", geometry = "outer"'
+           'supply_tolerance = "5 %"']
+    out += _device_lines([(pl, p) for pl, p, _ in members], driver[0], pin=name)
+    line = f'lines.{toml_key(name)} = {{ length = "5 cm", geometry = "outer"'
     if open_drain:
         out += ["# an open-drain output: the line's pull-up to the supply (placeholder)",
                 f'{line}, pullup = "{_GPIO_PULLUP}" }}']
     else:
         out.append(_noted(line + " }", "placeholder: your routed length"))
     return out
-
-
-def _toml_key(name: str) -> str:
-    """A pin name as a TOML key: bare where TOML allows, else quoted."""
-    bare = name and all(c.isascii() and (c.isalnum() or c in "_-") for c in name)
-    return name if bare else _toml_string(name)
 
 
 def starter_text(title: str, placed: list[tuple[Placement, object]],
