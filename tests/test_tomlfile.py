@@ -11,7 +11,7 @@ import textwrap
 import pytest
 
 from pinlib.core.errors import InputError
-from pinlib.core.tomlfile import line_index, line_of, tomllib
+from pinlib.core.tomlfile import line_index, line_of, toml_key, tomllib
 
 
 def test_line_index_finds_inline_keys_and_dotted_ones():
@@ -339,3 +339,15 @@ def test_a_toml_slip_is_named_with_its_line_field_and_fix(tmp_path, body, line, 
     err = info.value
     assert (err.line, err.field) == (line, field), str(err)
     assert err.hint and hint in err.hint, str(err)
+
+
+@pytest.mark.parametrize("name, bare", [
+    ("reset", True), ("gpio_out", True), ("a-b", True), ("RDY2", True),
+    ("a b", False), ("p\u00efn", False), ("x.y", False), ('say "hi"', False), ("", False),
+])
+def test_toml_key_is_bare_only_where_toml_allows_and_reads_back(name, bare):
+    # TOML v1.0.0, keys: a bare key holds ASCII letters, digits, "_" and "-" only
+    # (published: TOML v1.0.0, "Keys"); any other name is quoted
+    key = toml_key(name)
+    assert (key == name) is bare
+    assert tomllib.loads(f"{key} = 1") == {name: 1}
