@@ -209,7 +209,7 @@ class Ranking:
     def count_text(self) -> str:
         """How the library's placeable parts divide: those that can serve the position,
         those that cannot, and those not considered; the numbers add up to the whole."""
-        rest = [f"{self.excluded} cannot: pin functions or drives"]
+        rest = [f"{self.excluded} cannot: pin functions, drives or routes"]
         if self.set_aside.get("cable"):
             rest.append(f"{self.set_aside['cable']} are cables, which stand at no position")
         if self.set_aside.get("category"):
