@@ -92,6 +92,7 @@ SHORT: dict[str, str] = {
     "pullup_resistor": "Rp",
     "pullup": "Rp, effective",
     "max_clock": "f(max)",
+    "worst_edge": "edge",
     "load_capacitance": "C load",
     "series_resistor": "Rs",
 }
