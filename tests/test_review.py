@@ -1283,3 +1283,27 @@ def test_a_warning_slack_in_seconds_is_among_the_histograms_drawn():
     run = McResult("d", 4, 1, "uniform", [], rows, {}, None, np.zeros((4, 0)))
     charts, _ = review._mc_charts(run, review._Keys())
     assert len(charts) == review.MC_CHARTS and "C99" in charts[0].title
+
+
+def test_markdown_writes_ampersands_and_arrows_as_themselves_where_they_are_no_markup():
+    # the notes of every push-pull line read "(Johnson &amp; Graham, ...)" and
+    # "L / (R^2 C) &lt;= 0.01", a series resistor's finding "overshoot 703 mV -&gt; 0 V":
+    # as plain text at 80 columns a reviewer read the entities.  Only a "<" that could
+    # open HTML or an autolink and an "&" that could start a character reference need one.
+    mt = review._mt
+    assert mt("Johnson & Graham") == "Johnson & Graham"
+    assert mt("L / (R^2 C) <= 0.01, 703 mV -> 0 V, 1 < 2 > 0") == \
+        "L / (R^2 C) <= 0.01, 703 mV -> 0 V, 1 < 2 > 0"
+    assert mt("<img src=x onerror=alert(1)>") == "&lt;img src=x onerror=alert(1)>"
+    assert mt("</p> <!-- x --> <?php <https://x.example>") == \
+        "&lt;/p> &lt;!-- x --> &lt;?php &lt;https://x.example>"
+    assert mt("&amp; &#60; &#x3C; &lt;") == "&amp;amp; &amp;#60; &amp;#x3C; &amp;lt;"
+    assert mt("sensors.scl<-display.sclk, <-x@y.example>") == \
+        "sensors.scl<-display.sclk, &lt;-x@y.example>"
+    # a ">" that starts the text, or a wrapped line, would open a block quote
+    assert mt("> 5 ns") == "\\> 5 ns"
+    from pinlib.present.review.markdown import _wrapped
+
+    text = "abcdefghij " * 6 + "a" * 11 + " > 5 ns tail"
+    lines = _wrapped(text, "- ")
+    assert len(lines) > 1 and not any(ln.strip().startswith(">") for ln in lines[1:]), lines

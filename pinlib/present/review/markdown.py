@@ -39,13 +39,17 @@ from pinlib.present.values import figure_cells
 # Every user-written text (titles, ids, descriptions, sources, part values, paths) goes
 # through _mt: one line (newlines and runs of spaces become one space), the characters
 # that start inline Markdown escaped (emphasis, code, links and images, tables,
-# strikethrough), the HTML ones as entities, and a block marker at its start (a heading,
-# a list, a quote) made plain.  It cannot end a table, open a code block or add an image.
-_MD_INLINE = str.maketrans({**{c: "\\" + c for c in "\\`*_[]|~"},
-                            "<": "&lt;", ">": "&gt;", "&": "&amp;"})
-# a heading (# x), a bullet (- x, + x), a rule or heading underline (---, ===), a
-# numbered item (1. x): each only with the space or line end that makes it one
-_MD_LINE_START = re.compile(r"^(?:(#{1,6}|[+-])(?=\s|$)|([=-])(?=[=\-\s]*$)"
+# strikethrough), a "<" that could open HTML or an autolink (a URI's, an e-mail
+# address's) and an "&" that could start a character reference as entities (any other
+# "<", ">" or "&" reads as itself: "Johnson & Graham", "<= 0.01", "-> 0 V"), and a block
+# marker at its start (a heading, a list, a quote) made plain.  It cannot end a table,
+# open a code block or add an image.
+_MD_INLINE = str.maketrans({c: "\\" + c for c in "\\`*_[]|~"})
+_MD_HTML = re.compile(r"<(?=[A-Za-z/!?]|[^\s<>]*@[^\s<>]*>)|&(?=#?[A-Za-z0-9]+;)")
+_MD_ENTITY = {"<": "&lt;", "&": "&amp;"}
+# a heading (# x), a bullet (- x, + x), a quote (>), a rule or heading underline (---,
+# ===), a numbered item (1. x): each only with the space or line end that makes it one
+_MD_LINE_START = re.compile(r"^(?:(#{1,6}|[+-])(?=\s|$)|>|([=-])(?=[=\-\s]*$)"
                             r"|(\d{1,9})([.)])(?=\s|$))")
 
 
@@ -56,6 +60,7 @@ TEXT_WIDTH = 80
 def _mt(text) -> str:
     """User text for Markdown: one line in which nothing is markup (see above)."""
     s = " ".join(str(text).split()).translate(_MD_INLINE)
+    s = _MD_HTML.sub(lambda m: _MD_ENTITY[m.group(0)], s)
     return _MD_LINE_START.sub(_plain_start, s, count=1)
 
 
