@@ -312,3 +312,10 @@ def test_an_open_drain_lines_high_level_is_not_called_vdd():
     assert "high level 3.17 V" in spec and "VDD 3.17 V" not in spec
     w = plotdata.waveform_data(design.bus("fpga-enable"), design, "enable")
     assert w.high_name == "VDD" and w.vdd == pytest.approx(3.3)
+
+
+def test_the_board_note_spells_the_pull_up_as_a_word():
+    # the reset line's caption ended "worst corner of its tolerances (supply, pullup)"
+    design = load_design(ROOT / "workbooks" / "designs" / "gpio-reset-board.toml")
+    w = plotdata.waveform_data(design.bus("reset"), design, "reset")
+    assert any(n.endswith("worst corner of its tolerances (supply, pull-up)") for n in w.notes)

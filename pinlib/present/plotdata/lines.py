@@ -310,7 +310,8 @@ def _board_note(bus: Bus) -> str | None:
     specs = parameter_specs(bus)
     if not specs:
         return None
-    what = ", ".join(dict.fromkeys(kind for _, kind, *_ in specs))
+    what = ", ".join(dict.fromkeys("pull-up" if kind == "pullup" else kind
+                                   for _, kind, *_ in specs))
     return (f"the traces are the nominal board; the bus's checks are at the worst corner "
             f"of its tolerances ({what})")
 
