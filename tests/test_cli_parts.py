@@ -617,3 +617,26 @@ def test_cli_stays_free_of_pandas_and_altair(lib):
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                           cwd=Path(__file__).resolve().parents[1], timeout=120)
     assert done.returncode == 0, done.stderr
+
+
+def test_check_keeps_a_long_path_whole_on_a_line_of_its_own(lib, capsys, tmp_path, monkeypatch):
+    # at 80 columns a folder given by its absolute path was cut mid-path
+    # (".../with-another-level-below/" then "    parts/a.toml:10, field ..."), and the
+    # closing line "checked 1 file in <path>: 1 problem" ran past the width unwrapped
+    deep = tmp_path / "a-rather-long-folder-name-for-the-team-library" / "another-level"
+    deep.mkdir(parents=True)
+    (deep / "a.toml").write_text(EEPROM.replace('id = "eeprom"', 'id = "a"').replace(
+        '"8 pF"', '"8 pH"'), encoding="utf-8")
+    monkeypatch.setenv("COLUMNS", "80")
+    (tmp_path / "elsewhere").mkdir()
+    monkeypatch.chdir(tmp_path / "elsewhere")  # the folder is shown by its whole path
+    code, out, _ = run(capsys, "parts", "check", str(deep), "--library", str(tmp_path / "team"))
+    assert code == 1
+    where = f"{deep / 'a.toml'}:10,"
+    assert len(where) > 80
+    lines = out.splitlines()
+    # the path whole on a line of its own (the only words longer than the width)
+    long = [ln for ln in lines if str(deep) in ln]
+    assert long == [where, f"    {deep}:"]
+    assert all(len(ln) <= 80 for ln in lines if ln not in long)
+    assert lines[-3:] == ["checked 1 file in", f"    {deep}:", "    1 problem"]

@@ -21,10 +21,14 @@ _GLUE = re.compile(r"(?<=\d) (?=[^\W\d_]|%|Ω|µ|°)|(?<=[≤≥<>]) (?=[+−-]?
 NBSP = "\u00a0"
 
 
-def wrap(text: str, cols: int, indent: str = "", subsequent: str = "    ") -> list[str]:
+def wrap(text: str, cols: int, indent: str = "", subsequent: str = "    ", *,
+         break_long: bool = True) -> list[str]:
     """One logical line wrapped to ``cols`` characters, continuation lines indented by
-    ``subsequent`` (after ``indent``); a word longer than the width is broken."""
+    ``subsequent`` (after ``indent``); a word longer than the width is broken, or with
+    ``break_long=False`` kept whole on a line of its own (a file's path, which a reader
+    copies)."""
     glued = _GLUE.sub(NBSP, text)
     lines = textwrap.wrap(glued, max(10, cols), initial_indent=indent,
-                          subsequent_indent=indent + subsequent, break_on_hyphens=False)
+                          subsequent_indent=indent + subsequent, break_on_hyphens=False,
+                          break_long_words=break_long)
     return [ln.replace(NBSP, " ") for ln in lines] or [indent.rstrip()]
