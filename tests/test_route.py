@@ -958,3 +958,12 @@ def test_a_swap_that_puts_a_pin_on_a_line_whose_route_misses_the_device_is_refus
     assert all(c.status != "error" for c in ranking.candidates)
     assert "cannot: pin functions, drives or routes" in " ".join(
         ranking.format_text(width=80).split())
+
+
+def test_swap_help_names_the_route_refusal(capsys):
+    with pytest.raises(SystemExit):
+        main(["swap", "--help"])
+    out = " ".join(capsys.readouterr().out.split())
+    assert "a pin the old part lacks would sit on a routed line whose route does not reach " \
+           "the position" in out
+    assert "margins and figures that moved" in out

@@ -32,12 +32,14 @@ examples:
   pinlib swap --part eeprom-i2c=eeprom-hicap 'boards/*.toml'
   pinlib swap --part eeprom-i2c=eeprom-hicap 'boards/*.toml' --write
 
-The text lists what changed: checks whose status changed, figures that moved by more
-than the threshold (5 % unless --threshold) and the part values behind them; --detail
-prints every figure before and after (those that moved marked *).
+The text lists what changed: checks whose status changed, margins and figures that
+moved by more than the threshold (5 % unless --threshold) and the part values behind
+them; --detail prints every figure before and after (those that moved marked *).
 A part that cannot serve the position (a pin function the old part served on that bus
-is missing, or its drive is wrong for the role, e.g. a push-pull SDA, a peripheral's
-CIPO that is not push-pull) is refused with the reason and the file is not touched.
+is missing, its drive is wrong for the role, e.g. a push-pull SDA, a peripheral's CIPO
+that is not push-pull, or a pin the old part lacks would sit on a routed line whose
+route does not reach the position) is refused with the reason and the file is not
+touched.
 
 exit status: 0 the swapped design passes or warns, 1 a check fails, 2 a refused
 substitution or a design/library that is not valid.
