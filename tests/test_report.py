@@ -379,3 +379,18 @@ def test_the_ringing_row_says_its_numbers_count_re_crossings(monkeypatch, capsys
                         for r in rows), rows
     ringing = [c for b in demo.results() for _, _, c in b.all_checks() if c.id == "ringing"]
     assert ringing and all(c.to_json()["unit"] == "" for c in ringing)
+
+
+def test_the_warning_band_says_a_rating_has_none(capsys, tmp_path):
+    # the GPIO example's status line read "(warn below 10% margin)" above "Supply range
+    # U3 ... +2 %" passing: a rating (a part's supply range, a clock limit, an input's
+    # highest voltage) passes up to its limit, and the line now says so, in every form
+    gpio = ROOT / "workbooks" / "designs" / "gpio-reset-board.toml"
+    rule = ("a rating — a supply range, a clock limit, a highest input voltage — passes up to "
+            "its limit")
+    assert main(["check", str(gpio), "--detail"]) == 0
+    assert f"(warn below 10% margin; {rule})" in " ".join(capsys.readouterr().out.split())
+    for kind, name in (("--md", "r.md"), ("--html", "r.html")):
+        assert main(["report", str(gpio), kind, str(tmp_path / name)]) == 0
+        text = " ".join((tmp_path / name).read_text(encoding="utf-8").split())
+        assert f"(warning below 10% margin; {rule})" in text, kind

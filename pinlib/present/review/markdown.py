@@ -167,7 +167,7 @@ class _Markdown:
         self.w(*_wrapped(
             f"**Overall: {_MARK[res.status]}** — the design {_STATUS_WORD[res.status]}: "
             f"{counts['pass']} checks pass, {counts['warn']} warn, {counts['fail']} fail "
-            f"(warning below {res.warn_margin:.0%} margin)."), "")
+            f"(warning below {res.warn_margin:.0%} margin; {M.RATING_NO_WARN_BAND})."), "")
         self.w("## Summary", "")
         rows = []
         for b in res.results():
