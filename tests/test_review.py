@@ -1307,3 +1307,15 @@ def test_markdown_writes_ampersands_and_arrows_as_themselves_where_they_are_no_m
     text = "abcdefghij " * 6 + "a" * 11 + " > 5 ns tail"
     lines = _wrapped(text, "- ")
     assert len(lines) > 1 and not any(ln.strip().startswith(">") for ln in lines[1:]), lines
+
+
+def test_a_markdown_table_cell_shows_a_margin_beyond_the_scale_as_written():
+    # the checks tables read "\> +999 %" (before that "&gt; +999 %"): a block marker
+    # means nothing inside a table cell or after the start of a line, so text for a
+    # cell or the middle of a line keeps its first character as written
+    from pinlib.present.review.markdown import _m
+
+    assert _m("> +999 %") == "> +999 %"
+    assert _m("- 5 %") == "- 5 %" and _m("# 3") == "# 3"
+    assert _m("a|b *c*") == "a\\|b \\*c\\*"
+    assert _m("<b>") == "&lt;b>"

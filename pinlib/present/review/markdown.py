@@ -59,9 +59,7 @@ TEXT_WIDTH = 80
 
 def _mt(text) -> str:
     """User text for Markdown: one line in which nothing is markup (see above)."""
-    s = " ".join(str(text).split()).translate(_MD_INLINE)
-    s = _MD_HTML.sub(lambda m: _MD_ENTITY[m.group(0)], s)
-    return _MD_LINE_START.sub(_plain_start, s, count=1)
+    return _MD_LINE_START.sub(_plain_start, _m(text), count=1)
 
 
 def _plain_start(m: re.Match) -> str:
@@ -71,8 +69,11 @@ def _plain_start(m: re.Match) -> str:
 
 
 def _m(text) -> str:
-    """Text for a Markdown table cell (``|`` is escaped by _mt as well)."""
-    return _mt(text)
+    """Text for a Markdown table cell, or for a line after its start: inline markup
+    escaped as :func:`_mt` does (``|`` too), its first character as written (a block
+    marker means nothing in a cell or in the middle of a line: ``> +999 %`` reads so)."""
+    s = " ".join(str(text).split()).translate(_MD_INLINE)
+    return _MD_HTML.sub(lambda m: _MD_ENTITY[m.group(0)], s)
 
 
 def _title(text) -> str:
