@@ -663,3 +663,20 @@ def test_a_new_design_explains_itself_without_the_source_documents(tmp_path):
     assert re.search(r'^lines\.sclk = \{ series_resistor = "auto", route = \[$', routed,
                      flags=re.MULTILINE) and spi.devices
     assert main(["check", str(path)]) in (0, 1)
+
+
+def test_swap_over_designs_names_an_old_part_no_library_holds(tmp_path, capsys):
+    # "pinlib swap --part eeprom-i2=eeprom-hicap a.toml" (a typo of eeprom-i2c) said
+    # "no position to change" and exited 0, as though no design used the part, where
+    # "pinlib parts used-by eeprom-i2" names the typo
+    a = _board(tmp_path, "a.toml")
+    before = a.read_text(encoding="utf-8")
+    assert main(["swap", "--part", "eeprom-i2=rtc-i2c", str(a)]) == 2
+    out, err = capsys.readouterr()
+    err = " ".join(err.split())
+    assert "field '--part'" in err and "(got 'eeprom-i2')" in err
+    assert "closest: eeprom-i2c" in err
+    assert a.read_text(encoding="utf-8") == before
+    # a known part that no design places still reads as before
+    assert main(["swap", "--part", "led-driver-fmplus=rtc-i2c", str(a)]) == 0
+    assert "no position to change" in capsys.readouterr().out
