@@ -324,7 +324,7 @@ def test_a_bus_that_fails_on_a_check_without_a_margin_names_it_not_a_passing_one
     bus.lines.append(ln)
     line = bus_line(bus)
     assert "Supply range" not in line and "+4 %" not in line, line
-    assert "failing check Pull up (RESET U10)" in line, line
+    assert "failing check Pull-up (RESET U10)" in line, line
     # a warning without a margin is named the same way beside passing margins
     ln.checks[0] = Check("contention", "warn", 2, 1, "", None, "common practice, no source",
                          "two drivers")

@@ -109,6 +109,7 @@ CHECKS: dict[str, str] = {
     "line-delay": "Line delay ≤ clock period",
     # its value and limit are counts (unit ""): the label says of what
     "ringing": "Ringing re-crossings",
+    "pull-up": "Pull-up",
     "bridge-gate-drive": "Translator gate drive",
     "crosstalk-low": "Crosstalk held low",
     "crosstalk-high": "Crosstalk held high",
