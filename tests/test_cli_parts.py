@@ -620,23 +620,21 @@ def test_cli_stays_free_of_pandas_and_altair(lib):
 
 
 def test_check_keeps_a_long_path_whole_on_a_line_of_its_own(lib, capsys, tmp_path, monkeypatch):
-    # at 80 columns a folder given by its absolute path was cut mid-path
-    # (".../with-another-level-below/" then "    parts/a.toml:10, field ..."), and the
-    # closing line "checked 1 file in <path>: 1 problem" ran past the width unwrapped
-    deep = tmp_path / "a-rather-long-folder-name-for-the-team-library" / "another-level"
-    deep.mkdir(parents=True)
-    (deep / "a.toml").write_text(EEPROM.replace('id = "eeprom"', 'id = "a"').replace(
+    # at 80 columns a folder's path was cut mid-name where the width fell
+    # (".../with-another-level-bel" then "ow/parts/a.toml:10, ..."), and the closing line
+    # "checked 1 file in <path>: 1 problem" ran past the width unwrapped.  A path that
+    # fits the width goes whole on a line of its own; a longer one breaks after a "/"
+    rel = "a" * 40 + "/" + "b" * 37  # invented folder names: 78 characters
+    (tmp_path / rel).mkdir(parents=True)
+    (tmp_path / rel / "a.toml").write_text(EEPROM.replace('id = "eeprom"', 'id = "a"').replace(
         '"8 pF"', '"8 pH"'), encoding="utf-8")
     monkeypatch.setenv("COLUMNS", "80")
-    (tmp_path / "elsewhere").mkdir()
-    monkeypatch.chdir(tmp_path / "elsewhere")  # the folder is shown by its whole path
-    code, out, _ = run(capsys, "parts", "check", str(deep), "--library", str(tmp_path / "team"))
+    code, out, _ = run(capsys, "parts", "check", rel, "--library", "team")
     assert code == 1
-    where = f"{deep / 'a.toml'}:10,"
-    assert len(where) > 80
     lines = out.splitlines()
-    # the path whole on a line of its own (the only words longer than the width)
-    long = [ln for ln in lines if str(deep) in ln]
-    assert long == [where, f"    {deep}:"]
-    assert all(len(ln) <= 80 for ln in lines if ln not in long)
-    assert lines[-3:] == ["checked 1 file in", f"    {deep}:", "    1 problem"]
+    assert all(len(ln) <= 80 for ln in lines), out
+    # the problem's "<path>/a.toml:10," (89 characters) broken after its last fitting "/"
+    i = lines.index(rel + "/")
+    assert lines[i + 1] == "a.toml:10," and lines[i + 2].startswith("    field 'pins.sda.c_in'")
+    # the closing line's "<path>:" (79 characters) whole and unindented
+    assert lines[-3:] == ["checked 1 file in", rel + ":", "    1 problem"]
