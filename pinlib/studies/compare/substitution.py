@@ -222,7 +222,7 @@ def _off_route(new_part: Part, device, bus) -> list[str]:
     on a routed line is one of its points, so the swapped design would not load."""
     from pinlib.model.design.route import gpio_pin, on_line
 
-    if bus.protocol not in ("spi", "gpio"):
+    if bus.protocol not in protocols.PUSH_PULL_PROTOCOLS:
         return []
     new_dev = replace(device, part=new_part, part_id=new_part.id)
     n_lines = len(bus.lines)
