@@ -680,3 +680,33 @@ def test_swap_over_designs_names_an_old_part_no_library_holds(tmp_path, capsys):
     # a known part that no design places still reads as before
     assert main(["swap", "--part", "led-driver-fmplus=rtc-i2c", str(a)]) == 0
     assert "no position to change" in capsys.readouterr().out
+
+
+def test_many_designs_in_a_deep_folder_keep_their_names_and_counts_at_80_columns(
+        tmp_path, capsys, monkeypatch):
+    # designs in a folder of 76 characters read at 80 columns as
+    # "WARN  <folder>/and-another-level-of-folders-below-i…" twice (which design is
+    # which?), and the short one padded to their width as "FAIL  spi-route.toml…": the
+    # names, the counts and an error's message were cut with the title
+    monkeypatch.chdir(tmp_path)
+    deep = Path("a-rather-long-folder-name-for-boards") / "and-another-level-of-folders-below"
+    (tmp_path / deep).mkdir(parents=True)
+    _board(tmp_path / deep, "demo.toml")
+    (tmp_path / deep / "gpio.toml").write_text(
+        (ROOT / "workbooks" / "designs" / "gpio-reset-board.toml").read_text(encoding="utf-8"),
+        encoding="utf-8")
+    _board(tmp_path, "b.toml")
+    (tmp_path / "c.toml").write_text('format = "pinlib.design/1"\ntitle = 3\n',
+                                     encoding="utf-8")
+    monkeypatch.setenv("COLUMNS", "80")
+    assert main(["check", str(deep / "*.toml"), "b.toml", "c.toml", "--jobs", "1"]) == 2
+    out, err = capsys.readouterr()
+    lines = out.splitlines()
+    assert all(len(ln) <= 80 for ln in lines), out
+    flat = " ".join(out.split())
+    for name in ("demo.toml", "gpio.toml", "b.toml"):
+        assert name in flat
+    assert flat.count("139 pass, 1 warn, 0 fail") == 2 and "20 pass, 0 warn, 0 fail" in flat
+    # the error's message whole, as standard error has it: nothing of it cut
+    message = " ".join(err.split()).split("c.toml: not checked: ", 1)[1]
+    assert "ERROR c.toml" in flat and f"not checked: {message}" in flat

@@ -13,12 +13,52 @@ _WORDS = {"pass": "PASS", "warn": "WARN", "fail": "FAIL", "error": "ERROR"}
 def summary_line(s, width: int) -> str:
     """One design: status, path, then its counts and title, or why it was not checked."""
     head = f"{_WORDS.get(s.status, s.status.upper()):<6}{s.path:<{width}}  "
+    return head + _tail(s)
+
+
+def _tail(s) -> str:
+    """What follows a design's path: its counts and title, or why it was not checked."""
     if s.error is not None:
         message = s.error_here or s.error
-        return head + M.DESIGN_NOT_LOADED.format(path=s.path, message=message) \
+        return M.DESIGN_NOT_LOADED.format(path=s.path, message=message) \
             .removeprefix(f"{s.path}: ")
     c = s.counts
-    return head + f"{c['pass']} pass, {c['warn']} warn, {c['fail']} fail — {s.title}"
+    return f"{c['pass']} pass, {c['warn']} warn, {c['fail']} fail — {s.title}"
+
+
+def _fitted_summary(s, width: int, cols: int) -> list[str]:
+    """A design's line at most ``cols`` wide: as :func:`summary_line` (its path padded to
+    ``width``) where it fits; else with only the title cut, the path unpadded if need be;
+    else the path on a line of its own and the rest under it, an error's message wrapped
+    whole (never cut), the counts kept and the title cut."""
+    from pinlib.present.terminal import wrap
+
+    word = f"{_WORDS.get(s.status, s.status.upper()):<6}"
+    tail = _tail(s)
+    for pad in (width, 0):
+        line = (word + f"{s.path:<{pad}}  " + tail).rstrip()
+        if len(line) <= cols:
+            return [line]
+    if s.error is None:
+        c = s.counts
+        essential = f"{c['pass']} pass, {c['warn']} warn, {c['fail']} fail"
+        for pad in (width, 0):
+            line = word + f"{s.path:<{pad}}  " + essential
+            if len(line) + 2 <= cols:  # room for " …" at least
+                return [(line + tail[len(essential):])[:cols - 1].rstrip() + "…"]
+        rest = "    " + tail
+        rest = rest if len(rest) <= cols else rest[:cols - 1].rstrip() + "…"
+        return _own_line(word, s.path, cols) + [rest]
+    return _own_line(word, s.path, cols) + wrap(tail, cols, "    ", "    ", break_long=False)
+
+
+def _own_line(word: str, path: str, cols: int) -> list[str]:
+    """The status word and a path too long for one line with the rest: on a line of
+    their own, broken after a ``/`` where they do not fit (a name never cut)."""
+    from pinlib.core.wrapping import NBSP
+    from pinlib.present.terminal import wrap
+
+    return wrap(word.replace(" ", NBSP) + path, cols, break_long=False)
 
 
 def _snapshot_lines(s, cols: int | None) -> list[str]:
@@ -47,17 +87,18 @@ def _snapshot_lines(s, cols: int | None) -> list[str]:
 
 def format_many(summaries, cols: int | None = None) -> str:
     """Every design's line (and snapshot changes), then the counts of designs; ``cols``:
-    characters per line (None: no limit), a design's line cut to it (its title last, so
-    the status, path and counts stay whole) and the closing line wrapped."""
+    characters per line (None: no limit), a design's line fitted to it (its title cut
+    first; the status, path, counts and an error's message stay whole,
+    :func:`_fitted_summary`) and the closing line wrapped."""
     from pinlib.present.terminal import wrap
 
     width = max(len(s.path) for s in summaries)
     out = []
     for s in summaries:
-        line = summary_line(s, width).rstrip()
-        if cols is not None and len(line) > cols:
-            line = line[:cols - 1].rstrip() + "…"
-        out.append(line)
+        if cols is None:
+            out.append(summary_line(s, width).rstrip())
+        else:
+            out += _fitted_summary(s, width, cols)
         out += _snapshot_lines(s, cols)
     counts = {k: sum(1 for s in summaries if s.status == k)
               for k in ("pass", "warn", "fail", "error")}
