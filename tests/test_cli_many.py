@@ -710,3 +710,19 @@ def test_many_designs_in_a_deep_folder_keep_their_names_and_counts_at_80_columns
     # the error's message whole, as standard error has it: nothing of it cut
     message = " ".join(err.split()).split("c.toml: not checked: ", 1)[1]
     assert "ERROR c.toml" in flat and f"not checked: {message}" in flat
+
+
+def test_swap_over_designs_in_a_deep_folder_never_cuts_a_name(tmp_path, capsys, monkeypatch):
+    # "pinlib swap --part ..." at 80 columns cut a design's path where the width fell:
+    # ".../and-another-level-of-folders-below-it/demo." then "    toml  no position..."
+    monkeypatch.chdir(tmp_path)
+    deep = Path("a-rather-long-folder-name-for-boards") / "and-another-level-of-folders-below-it"
+    (tmp_path / deep).mkdir(parents=True)
+    _board(tmp_path / deep, "demo.toml")
+    _board(tmp_path / deep, "second-demo-board.toml")
+    monkeypatch.setenv("COLUMNS", "80")
+    assert main(["swap", "--part", "nor-flash-spi=adc-spi", str(deep / "*.toml")]) in (0, 1)
+    lines = capsys.readouterr().out.splitlines()
+    assert all(len(ln) <= 80 for ln in lines)
+    for name in ("demo.toml", "second-demo-board.toml"):
+        assert any(ln.strip().startswith(name) or f"/{name}" in ln for ln in lines), lines

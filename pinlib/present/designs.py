@@ -169,6 +169,7 @@ def format_swaps(summaries, parts: dict, *, write: bool, cols: int | None = None
                f"{n['error']} not checked{tail}")
     if cols is not None:
         out = [w for line in out
-               for w in (wrap(line.lstrip(), cols, line[:len(line) - len(line.lstrip())])
+               for w in (wrap(line.lstrip(), cols, line[:len(line) - len(line.lstrip())],
+                              break_long=False)  # a path: never cut inside a name
                          if len(line) > cols else [line])]
     return "\n".join(out) + "\n"
