@@ -394,3 +394,26 @@ def test_the_warning_band_says_a_rating_has_none(capsys, tmp_path):
         assert main(["report", str(gpio), kind, str(tmp_path / name)]) == 0
         text = " ".join((tmp_path / name).read_text(encoding="utf-8").split())
         assert f"(warning below 10% margin; {rule})" in text, kind
+
+
+def test_the_detail_command_of_a_long_path_pastes_whole_at_80_columns():
+    # "Every figure and check: pinlib check /tmp/.../a-rather-long-folder-name-for-board"
+    # then "    s/and-another-.../gpio-reset-board.toml --detail": the path was cut inside
+    # a name, and what a reader pasted was no longer the command.  The command is
+    # continued as a shell reads it: lines end in a backslash, a word too long for a
+    # line goes on after one with no space (the shell joins the two halves)
+    import shlex
+
+    result = check_file(ROOT / "workbooks" / "designs" / "gpio-reset-board.toml")
+    path = ("/tmp/hb/a-rather-long-folder-name-for-boards/"
+            "and-another-level-of-folders-below-it/gpio-reset-board.toml")  # invented
+    more = f"pinlib check {path} --detail"
+    text = format_text(result, width=80, more=more)
+    lines = text.splitlines()
+    assert all(len(ln) <= 80 for ln in lines), text
+    start = next(i for i, ln in enumerate(lines) if ln.startswith("Every figure and check:"))
+    pasted = "\n".join(lines[start:]).removeprefix("Every figure and check:")
+    assert shlex.split(pasted.replace("\\\n", "")) == ["pinlib", "check", path, "--detail"]
+    # a command that fits is one line below the words, as before
+    short = format_text(result, width=80, more="pinlib check board.toml --detail")
+    assert "Every figure and check: pinlib check board.toml --detail" in short
