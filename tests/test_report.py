@@ -417,3 +417,22 @@ def test_the_detail_command_of_a_long_path_pastes_whole_at_80_columns():
     # a command that fits is one line below the words, as before
     short = format_text(result, width=80, more="pinlib check board.toml --detail")
     assert "Every figure and check: pinlib check board.toml --detail" in short
+
+
+def test_a_long_path_in_the_detail_and_the_swap_heading_is_never_cut_inside_a_name(
+        tmp_path, capsys, monkeypatch):
+    # "design: ... (/tmp/hb/a-r" then "    ather-long-folder-name-...": --detail's
+    # heading and swap's cut a design's path where the width fell
+    deep = tmp_path / "a-rather-long-folder-name-for-boards" / "and-another-level-of-folders"
+    deep.mkdir(parents=True)
+    design = deep / "gpio-reset-board.toml"
+    design.write_text((ROOT / "workbooks" / "designs" / "gpio-reset-board.toml")
+                      .read_text(encoding="utf-8"), encoding="utf-8")
+    monkeypatch.setenv("COLUMNS", "80")
+    for argv in (["check", str(design), "--detail"], ["swap", str(design), "U3=mcu-3v3"]):
+        main(argv)
+        lines = capsys.readouterr().out.splitlines()
+        assert all(len(ln) <= 80 for ln in lines)
+        for name in (*tmp_path.parts[1:], "a-rather-long-folder-name-for-boards",
+                     "and-another-level-of-folders", "gpio-reset-board.toml"):
+            assert any(name in ln for ln in lines), (argv[0], name)

@@ -22,12 +22,12 @@ NBSP = "\u00a0"
 
 
 def wrap(text: str, cols: int, indent: str = "", subsequent: str = "    ", *,
-         break_long: bool = True) -> list[str]:
+         break_long: bool = False) -> list[str]:
     """One logical line wrapped to ``cols`` characters, continuation lines indented by
-    ``subsequent`` (after ``indent``); a word longer than the width is broken.  With
-    ``break_long=False`` such a word (a file's path, which a reader copies) goes on a
-    line of its own, whole and unindented where it fits the width so, else broken after
-    a ``/`` (:func:`_path_pieces`), never inside a name."""
+    ``subsequent`` (after ``indent``).  A word too long for its line (a file's path,
+    which a reader copies) goes on a line of its own, whole and unindented where it fits
+    the width so, else broken after a ``/`` (:func:`_path_pieces`), never inside a
+    name; with ``break_long=True`` it is broken where the width falls instead."""
     glued = _GLUE.sub(NBSP, text)
     width = max(10, cols)
     lines = textwrap.wrap(glued, width, initial_indent=indent,
