@@ -542,7 +542,7 @@ def test_swap_over_designs_fits_the_terminal(tmp_path, capsys, monkeypatch, cols
     assert max(len(ln) for ln in lines) <= cols
     first = next(ln for ln in lines if ln.startswith("a-board"))
     assert "WARN → FAIL" in first
-    assert any(ln.startswith("2 design(s): 2 changed") for ln in lines)
+    assert any(ln.startswith("2 designs: 2 changed") for ln in lines)
 
 
 def test_swap_over_designs_refuses_mixed_forms(tmp_path, capsys):
@@ -726,3 +726,12 @@ def test_swap_over_designs_in_a_deep_folder_never_cuts_a_name(tmp_path, capsys, 
     assert all(len(ln) <= 80 for ln in lines)
     for name in ("demo.toml", "second-demo-board.toml"):
         assert any(ln.strip().startswith(name) or f"/{name}" in ln for ln in lines), lines
+
+
+def test_swap_over_designs_counts_in_words():
+    # "5 check(s) changed status, 16 margin(s) moved, 24 figure(s) moved" and
+    # "3 design(s): ..." where "pinlib check" over designs writes "3 designs: ..."
+    from pinlib.present.designs import _counted
+
+    assert _counted(1, "check") == "1 check" and _counted(0, "check") == "0 checks"
+    assert _counted(16, "margin") == "16 margins"

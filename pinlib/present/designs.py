@@ -123,6 +123,11 @@ def format_uses(part_id: str, uses: list[dict], n_designs: int) -> str:
     return "\n".join(out) + "\n"
 
 
+def _counted(n: int, noun: str) -> str:
+    """``n`` and the noun, plural but for one: ``1 check``, ``16 margins``."""
+    return f"{n} {noun}{'' if n == 1 else 's'}"
+
+
 def _swap_lines(s, width: int) -> list[str]:
     head = f"{s.path:<{width}}  "
     if s.status == "error":
@@ -137,9 +142,10 @@ def _swap_lines(s, width: int) -> list[str]:
             out += [f"    {r['ref']}: {reason}" for reason in r["reasons"]]
         return out
     c = s.changes
-    moved = (f"{len(c.status_changes)} check(s) changed status, "
-             + (f"{len(c.margin_changes)} margin(s) moved, " if c.margin_changes else "")
-             + f"{len(c.figure_changes)} figure(s) moved")
+    moved = (f"{_counted(len(c.status_changes), 'check')} changed status, "
+             + (f"{_counted(len(c.margin_changes), 'margin')} moved, " if c.margin_changes
+                else "")
+             + f"{_counted(len(c.figure_changes), 'figure')} moved")
     written = "; written" if s.written else ""
     out = [head + f"{s.before.upper()} → {s.after.upper()}  {where}; {moved}{written}"]
     out += ["    " + ch.format() for ch in c.status_changes]
@@ -164,7 +170,8 @@ def format_swaps(summaries, parts: dict, *, write: bool, cols: int | None = None
     out.append("")
     tail = ("" if write or not n["swapped"]
             else "; add --write to edit the files that were not refused")
-    out.append(f"{len(summaries)} design(s): {n['swapped']} changed ({failing} failing after), "
+    out.append(f"{_counted(len(summaries), 'design')}: {n['swapped']} changed "
+               f"({failing} failing after), "
                f"{n['refused']} refused, {n['unused']} without the part, "
                f"{n['error']} not checked{tail}")
     if cols is not None:
