@@ -1319,3 +1319,24 @@ def test_a_markdown_table_cell_shows_a_margin_beyond_the_scale_as_written():
     assert _m("- 5 %") == "- 5 %" and _m("# 3") == "# 3"
     assert _m("a|b *c*") == "a\\|b \\*c\\*"
     assert _m("<b>") == "&lt;b>"
+
+
+def test_the_markdown_monte_carlo_table_cites_each_source_by_number(tmp_path):
+    # each row of the Monte Carlo table carried its limit's source in full, up to 300
+    # characters of plain text a line (the GPIO example's undershoot rows): the sources
+    # go under the table, each once, cited by number as the parts tables do
+    gpio = ROOT / "workbooks" / "designs" / "gpio-reset-board.toml"
+    out = tmp_path / "r.md"
+    assert main(["report", str(gpio), "--md", str(out), "--monte-carlo", "200",
+                 "--seed", "2"]) == 0
+    md = out.read_text(encoding="utf-8")
+    section = md[md.index("## Monte Carlo"):md.index("## Parts")]
+    rows = [ln for ln in section.splitlines() if ln.startswith("| ") and "---" not in ln]
+    head, body = rows[0], rows[1:]
+    assert head.endswith("| Source |") and body
+    assert all(re.search(r"\| \[\d+\] \|$", ln) for ln in body), body
+    assert max(len(ln) for ln in body) <= 160  # the numbers and the sensitivity text
+    assert "- [1] " in section and "common practice" in section
+    # every source written once
+    sources = [ln for ln in section.splitlines() if re.match(r"- \[\d+\] ", ln)]
+    assert len(sources) == len(set(ln.split("] ", 1)[1] for ln in sources))

@@ -254,8 +254,20 @@ class _Markdown:
         for line in _mc_summary(self.r.mc):
             self.w(*_wrapped(_mt(line)), "")
         if self.r.mc_entries:
-            self.w(*_table(list(_MC_HEAD), [[_m(c) for c in _mc_cells(r)]
-                                            for r in self.r.mc_entries]))
+            # the numbers in the table, each limit's source once under it, cited by
+            # number (a row that carried its own in full was up to 300 characters)
+            cite: dict[str, int] = {}
+            rows = []
+            for r in self.r.mc_entries:
+                *cells, src = _mc_cells(r)
+                ref = f"[{cite.setdefault(src, len(cite) + 1)}]" if src else "—"
+                rows.append([_m(c) for c in cells] + [ref])
+            self.w(*_table([*_MC_HEAD[:-1], "Source"], rows))
+            if cite:
+                self.w("Sources of the limits:", "")
+                for src, n in cite.items():
+                    self.w(*_wrapped(_mt(src), f"- [{n}] ", "  "))
+                self.w("")
         for chart in self.r.mc_charts:
             self.chart(chart)
 
