@@ -899,3 +899,12 @@ def test_monte_carlo_rows_keep_min_with_its_margin_at_80_columns(capsys, monkeyp
     rows = [ln for ln in lines if re.search(r"\bmin\b", ln)]
     assert rows and all(re.search(r"\bmin [+−-]?\d", ln) for ln in rows), rows
     assert all(len(ln) <= 80 for ln in lines)
+
+
+def test_the_interpolation_note_spells_the_pull_up_as_a_word(capsys):
+    # the GPIO example's Monte Carlo note read "(supply factor 0.97–1.03, pullup factor
+    # 0.99–1.01)": the parameter kind's id where the text elsewhere writes "pull-up"
+    gpio = ROOT / "workbooks" / "designs" / "gpio-reset-board.toml"
+    assert main(["check", str(gpio), "--monte-carlo", "200", "--seed", "1"]) == 0
+    out = " ".join(capsys.readouterr().out.split())
+    assert "pull-up factor 0.99–1.01" in out and "pullup factor" not in out
