@@ -125,11 +125,3 @@ def test_assembling_walks_every_named_check_or_raises(monkeypatch):
                         lambda b, r: [*names(b, r), {"name": "extra", "engine": None}])
     with pytest.raises(RuntimeError, match=r"checks assembled against \d+ named \(.*extra\)"):
         _assembled(bus, d)
-
-
-def test_the_corner_note_counts_one_parameter_in_the_singular():
-    # the GPIO example's fpga-enable bus noted "all 2 corners of 1 parameters"
-    from pinlib.engines.ppworst import method_text
-
-    assert method_text(1) == "both corners of its 1 parameter"
-    assert method_text(5) == "all 32 corners of 5 parameters"

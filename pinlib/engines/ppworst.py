@@ -112,8 +112,6 @@ def method_text(k: int, limit: int = EXHAUSTIVE_LIMIT) -> str:
     """How :func:`search` covers ``k`` parameters, for a note."""
     if k == 0:
         return "no toleranced parameter"
-    if k == 1:
-        return "both corners of its 1 parameter"
     if k <= limit:
         return f"all {2 ** k} corners of {k} parameters"
     return (f"{k} parameters: each alone at both ends, then for each check every parameter "
