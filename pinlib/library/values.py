@@ -17,7 +17,8 @@ from pinlib.core.errors import UnitError
 from pinlib.core.quantity import Threshold, format_si, parse, parse_threshold, range_text
 from pinlib.core.valueclass import value_class
 
-__all__ = ["BASES", "Sourced", "sourced_parser", "threshold_parser"]
+__all__ = ["BASES", "Sourced", "StatedList", "sourced_parser", "threshold_parser",
+           "modes_parser"]
 
 #: How a value was obtained ("ibis": read or derived by arithmetic from an IBIS file;
 #: "derived" is set by pinlib itself and stays last).
@@ -128,6 +129,60 @@ class Sourced:
         if self.typ is not None:
             out["typ"] = str(self.typ) if isinstance(self.typ, Threshold) else self.typ
         return out
+
+
+class StatedList(tuple):
+    """A list a part states (its SPI modes) that keeps, as :class:`Sourced` does, the
+    part whose file set it and that file's basis and source (a part that extends a class
+    and does not restate the list cites the class's file, not its own).
+
+    Attributes
+    ----------
+    origin : str or None
+        The part id whose file set the list.
+    basis, source : str or None
+        That file's provenance.
+    """
+
+    origin: str | None = None
+    basis: str | None = None
+    source: str | None = None
+
+    def with_origin(self, origin: str, *, file: str | None = None,
+                    provenance: dict | None = None) -> StatedList:
+        """The list stamped with the part that set it and its file's provenance."""
+        if self.origin:
+            return self
+        out = StatedList(self)
+        out.origin = origin
+        prov = provenance or {}
+        out.basis, out.source = prov.get("basis") or "generic", prov.get("source") or None
+        return out
+
+    def cited(self, field: str) -> str:
+        """``'nor-flash-spi timing.spi_modes (typical of the class)'``: the part that set
+        it, the field, and its file's source (or basis)."""
+        said = self.source or self.basis
+        return f"{self.origin} {field}" + (f" ({said})" if said else "")
+
+
+def modes_parser(raw, name=None):
+    """A record converter: a list of SPI modes (whole numbers 0 to 3, each once, at least
+    one) -> :class:`StatedList`."""
+    if isinstance(raw, StatedList):
+        return raw
+    field = _field_name(name)
+    if not isinstance(raw, (list, tuple)) or not raw:
+        raise UnitError(M.SPI_MODES_BAD_LIST, field=field, value=raw,
+                        expected="e.g. [0, 3]")
+    for i, m in enumerate(raw):
+        if isinstance(m, bool) or not isinstance(m, int) or not 0 <= m <= 3:
+            raise UnitError(M.SPI_MODE_NOT_0_TO_3, field=f"{field}[{i}]" if field else None,
+                            value=m, expected="0, 1, 2 or 3")
+    if len(set(raw)) != len(raw):
+        raise UnitError(M.SPI_MODES_BAD_LIST, field=field, value=list(raw),
+                        expected="e.g. [0, 3]")
+    return StatedList(sorted(raw))
 
 
 def _split_table(raw, field):

@@ -9,6 +9,7 @@ import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError
+from pinlib.core.labels import and_list
 from pinlib.core.valueclass import value_class
 from pinlib.engines.pushline import (
     EDGE_FRACTION,
@@ -19,6 +20,7 @@ from pinlib.engines.pushline import (
 )
 from pinlib.engines.spi.budget import ControllerTiming, PeripheralTiming, budget_terms
 from pinlib.engines.spi.margins import max_clock
+from pinlib.engines.spi.modecheck import mode_limits
 from pinlib.engines.spi.modes import (
     _CONTROLLER_DRIVES,
     _SPI_ORDER,
@@ -67,6 +69,7 @@ class SpiAnalysis:
     f_limits: list
     edge_terms: list
     notes: list
+    mode_limits: list = ()
 
     def max_clock(self) -> float:
         """Highest clock at which every timing margin and every part's ``f_max`` hold:
@@ -266,8 +269,7 @@ def _shared_cs_note(controller: Device, pins: list) -> str:
     """What the one CS line of a bus with several peripherals stands for: the design
     gives one CS description, and pinlib solves it as one net loading every peripheral's
     CS pin; a board with a chip select per peripheral has lighter lines."""
-    refs = [p.ref for p in pins]
-    named = ", ".join(refs[:-1]) + f" and {refs[-1]}"
+    named = and_list(p.ref for p in pins)
     return (f"cs: solved as one net from {controller.ref} to the CS pins of {named} "
             "together; where each peripheral has a chip select of its own (the usual "
             "board), each of those lines carries one pin, so its edges are faster and "
@@ -344,6 +346,10 @@ def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
         f = _timing_value(d, "f_max")
         if f is not None:
             f_limits.append((d.ref, f, _sourced_text(d, "f_max")))
+    m_limits, silent = mode_limits([controller] + peripherals + bridges)
+    if silent:
+        notes.append(f"SPI mode {mode.mode} not checked against {and_list(silent)}: "
+                     "no SPI modes stated (timing.spi_modes)")
     edge_terms = []
     if bus.clock:
         for sig, la in lines.items():
@@ -352,4 +358,4 @@ def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
             if edges:
                 edge_terms.append((sig, max(edges)))
     return SpiAnalysis(bus, mode, lines, ctl, periph_t, t_bridge, terms, f_limits,
-                       edge_terms, notes)
+                       edge_terms, notes, m_limits)

@@ -12,6 +12,7 @@ from pinlib.engines.pushline import (
 )
 from pinlib.engines.spi.analysis import SpiAnalysis, spi_analysis
 from pinlib.engines.spi.budget import Term
+from pinlib.engines.spi.modecheck import mode_checks
 from pinlib.engines.spi.modes import (
     MARGIN_NOT_COMPUTED,
     NO_CLOCK_LIMIT,
@@ -58,8 +59,9 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
     BusResult
         One line result per routed signal; checks ``copi-setup``, ``copi-hold``,
         ``cipo-setup``, ``cipo-hold``, ``cs-setup``, ``cipo-first-bit`` (CPHA 0, a
-        peripheral that records ``t_cs_valid``; per peripheral) and ``f-max``
-        (per part); figures ``max_clock`` [Hz], ``cipo_setup_margin``,
+        peripheral that records ``t_cs_valid``; per peripheral), ``f-max``
+        (per part) and ``spi-mode`` (per part that states its modes); figures
+        ``max_clock`` [Hz], ``cipo_setup_margin``,
         ``copi_setup_margin`` and ``copi_hold_margin`` (the worst over peripherals,
         available minus required time; None when not computed) [s].
     """
@@ -83,6 +85,8 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
         res.add(check_max("f-max", clock, f, "Hz", source,
                           f"clock {_fmt(clock, 'Hz')} against {ref}'s f_max {_fmt(f, 'Hz')}",
                           warn_margin=0.0, subject=ref))  # a rating: at it is inside
+    for chk in mode_checks(bus, sa.mode_limits):
+        res.add(chk)
     for la in sa.lines.values():
         res.lines.append(la.result)
     (f_top, by, _), (f_edge, edge_sig) = sa.clock_limits()[0], sa.edge_rule_clock()
