@@ -180,3 +180,32 @@ def test_new_writes_a_mode_every_part_states(tmp_path, parts):
 def test_new_says_when_the_parts_share_no_mode(tmp_path, parts):
     path = _new(tmp_path, "U1=ctl-all", "U2=per-03", "U3=per-12", library=parts)
     assert "the parts share no SPI mode: see pinlib check" in path.read_text(encoding="utf-8")
+
+
+def test_show_swap_and_snapshot_carry_the_list_whole(tmp_path, parts, capsys, monkeypatch):
+    import shutil
+
+    from pinlib.cli import main
+
+    monkeypatch.setenv("COLUMNS", "80")
+    lib = ["--library", str(DATA), "--library", str(parts)]
+    assert main(["parts", "show", "per-03-child", "--json", *lib]) == 0
+    shown = json.loads(capsys.readouterr().out)
+    assert {"field": "timing.spi_modes", "value": [0, 3]} in shown["attributes"]
+    d, _ = write_design(tmp_path, mode=0, controller="ctl-all", peripherals=("per-03",),
+                        extra_library=parts)
+    path = tmp_path / "d.toml"
+    assert main(["check", str(path), "--save"]) == 0
+    capsys.readouterr()
+    # a part of other modes in its place: the check and the list that moved it
+    assert main(["swap", str(path), "U2=per-12", *lib]) == 1
+    out = capsys.readouterr().out
+    assert "SPI mode U2: pass → fail" in out
+    assert "U2 spi_modes [0, 3] → [1, 2], source: invented sheet B [datasheet]" in out
+    shutil.copy(path, tmp_path / "e.toml")
+    # the saved snapshot holds the list and reads back (it was refused as damaged)
+    assert "spi_modes" in (tmp_path / "d.result.json").read_text(encoding="utf-8")
+    assert main(["check", str(path), str(tmp_path / "e.toml"), "--against-snapshots"]) in (0, 1)
+    got = capsys.readouterr()
+    assert "damaged" not in got.out + got.err and "Traceback" not in got.err
+    assert "no part value differs" in " ".join(got.out.split())

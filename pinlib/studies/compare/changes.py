@@ -230,6 +230,8 @@ def _show_value(entry: dict | None) -> str:
     v = entry.get("value")
     if isinstance(v, (bool, str)) or v is None:
         return format_figure(v, "")
+    if isinstance(v, list):  # a list the part states (its SPI modes), as the file writes it
+        return "[" + ", ".join(str(x) for x in v) + "]"
     return format_si(v, entry.get("unit", ""))
 
 
