@@ -320,8 +320,11 @@ def test_bench_panel_on_a_gpio_line_gives_pinlib_measureds_answer(library, capsy
     assert got.cb == pytest.approx(26.410e-12, rel=1e-4)
     assert got.rise == pytest.approx(10e3 * got.cb * math.log(9.0), rel=1e-9)
     assert got.rise == pytest.approx(580.28e-9, rel=1e-4)
-    # what the panel shows is that answer, with units and the command's verdict
-    shown = html.unescape(b.bench_html.value)
+    # what the panel shows is that answer, with units and the command's verdict; a
+    # number is held to its unit (a no-break space), as the command's wrapping holds it
+    held = html.unescape(b.bench_html.value)
+    assert "26.4\u00a0pF" in held and "(±1\u00a0%)" in held and " pF" not in held, held
+    shown = held.replace("\u00a0", " ")
     for text in ("Bus reset, line reset", "26.4 pF", "580 ns", "(10–90 %, as measured)",
                  "the model's Cb <b>" + format_si(engine.cb_model, "F"),
                  "The measurement agrees with the model"):
@@ -334,7 +337,7 @@ def test_bench_panel_gpio_line_disagreeing_lists_what_to_revisit(library):
     b.set(bench_file=str(GPIO_RESET), rise_measured=2e-6, c_probe=10e-12)
     got = b.bench.comparison
     assert got.verdict == "above" and got.revisit
-    shown = html.unescape(b.bench_html.value)
+    shown = html.unescape(b.bench_html.value).replace("\u00a0", " ")
     assert "The board holds more capacitance than the model" in shown
     assert all(f"<li>{r}</li>" in shown for r in got.revisit)
     # faster than the probe alone through 10 kΩ: refused beside the panel, no answer

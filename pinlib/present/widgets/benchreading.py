@@ -3,6 +3,8 @@ line of a saved design (:func:`comparison_html`: what ``pinlib measured`` says o
 
 from __future__ import annotations
 
+import re
+
 from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
 from pinlib.engines.bench import READING_TOLERANCE, BenchComparison, MeasurableLine
@@ -49,6 +51,15 @@ class BenchReading:
     comparison: BenchComparison | None = None
 
 
+#: The space between a number and its unit ("23 pF", "10 kΩ", "10 %"), which the panel's
+#: text keeps unbroken (a no-break space), as the command's wrapping does.
+_NUMBER_UNIT = re.compile(r"(\d) (?=(?:[afpnµmkMGT]?(?:F|Ω|s|V)|%)(?![A-Za-z]))")
+
+
+def _held(text: str) -> str:
+    return _NUMBER_UNIT.sub("\\1\u00a0", text)
+
+
 def _percent(fraction: float) -> str:
     return f"{fraction * 100:g} %"
 
@@ -70,13 +81,13 @@ def comparison_html(got: BenchComparison) -> str:
     if got.rise_alone is not None:
         text += (f"; rise time without the probe <b>{e(f(got.rise_alone, 's'))}</b> "
                  f"({lo * 100:.0f}–{hi * 100:.0f} %, as measured)")
-    out = f'<div style="{BLOCK};font-size:12px">{text}.</div>'
-    out += "".join(f'<div style="{BLOCK};font-size:12px">Note: {e(n)}</div>'
+    out = f'<div style="{BLOCK};font-size:12px">{_held(text)}.</div>'
+    out += "".join(f'<div style="{BLOCK};font-size:12px">Note: {_held(e(n))}</div>'
                    for n in got.notes)
     verdict = got.verdict_text()
     out += (f'<div style="{BLOCK};font-size:12px;margin-top:2px">'
             f"<b>{e(verdict[0].upper() + verdict[1:])}</b></div>")
     if got.revisit:
         out += (f'<ul style="{BLOCK};font-size:12px;margin:2px 0;padding-left:18px">'
-                + "".join(f"<li>{e(r)}</li>" for r in got.revisit) + "</ul>")
+                + "".join(f"<li>{_held(e(r))}</li>" for r in got.revisit) + "</ul>")
     return out
