@@ -48,7 +48,7 @@ from pinlib.engines.ppworst import BoardRows, rank_margin
 from pinlib.engines.pushline import Flight
 from pinlib.engines.spi import budget_terms
 from pinlib.engines.spi.analysis import SpiAnalysis, line_flights, line_setup, term_clocks
-from pinlib.engines.spi.budget import Term
+from pinlib.engines.spi.budget import EDGE_FIELDS, Term
 from pinlib.engines.spi.evaluate import MARGIN_FIGURES, lowest_margins, term_check
 from pinlib.model.design import Bus, Design
 from pinlib.model.result import BusResult, LineResult
@@ -220,7 +220,7 @@ class _Corners:
                 got = flights.get(sig)
                 if got is None:
                     return getattr(p, sig)
-                if sig == "sclk":
+                if sig in EDGE_FIELDS:
                     return {e: Flight(*got[(i, e)]) for e in ("rise", "fall")}
                 return Flight(*got[(i, None)]) if (i, None) in got else None
             out.append(replace(p, **{sig: flight(sig) for sig in _FIELDS}))

@@ -88,6 +88,9 @@ BUDGET_COMPONENTS = {
     "cs-setup": (("cs_late", 1.0, "data or CS flight"),
                  ("sclk_early", -1.0, "SCLK flight"),
                  ("t_cs_setup", 1.0, "required setup or hold")),
+    "cs-hold": (("sclk_late", 1.0, "SCLK flight"),
+                ("cs_early", -1.0, "data or CS flight"),
+                ("t_cs_hold", 1.0, "required setup or hold")),
     "cipo-first-bit": (("cs_late", 1.0, "data or CS flight"),
                        ("t_cs_valid", 1.0, "output valid after CS (t_cs_valid)"),
                        ("cipo_late", 1.0, "data or CS flight"),
@@ -121,7 +124,8 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
     Every requirement of :func:`pinlib.engines.spi.budget_terms` is
     ``a T + b >= required``.  The bar of a path stacks ``required - b`` split into
     its terms (:data:`BUDGET_COMPONENTS`) against the available ``a T`` (half a
-    period), or against the controller's stated CS lead for ``cs-setup``; the margin
+    period), or against the controller's stated CS lead for ``cs-setup`` (its CS lag
+    for ``cs-hold``); the margin
     is the engine's ``Term.margin(T)``.  The status is the engine's own check
     (:func:`pinlib.engines.spi.evaluate.term_check` at the design's warning margin).
     """
@@ -136,7 +140,8 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
         if not math.isfinite(float(term.available(period))):
             not_drawn[path] = NO_TIME.format(what=term.never_switching())
             continue
-        lead = term.parts.get("lead")
+        # a CS lead or lag the controller states is available time of its own
+        lead = term.parts.get("lead", term.parts.get("lag"))
         lead_s = float(lead) if isinstance(lead, (int, float)) else 0.0
         used = 0.0
         for key, sign, comp in BUDGET_COMPONENTS[term.id]:
