@@ -114,3 +114,19 @@ def test_the_budget_chart_draws_the_hold(tmp_path):
     assert tb.status[path] == "fail"
 
 
+
+
+def test_swap_names_the_controllers_cs_lag_behind_the_change(tmp_path, capsys, monkeypatch):
+    from pinlib.cli import main
+    from tests.test_spi import DATA
+
+    monkeypatch.setenv("COLUMNS", "100")
+    _part(tmp_path, "pp-ctrl", "ctl-quick", 't_cs_hold = "1 ns"\n')
+    _part(tmp_path, "pp-periph", "per-hold", 't_cs_hold = "5 ns"\n')
+    write_design(tmp_path, peripherals=("per-hold",), extra_library=tmp_path, clock="1 MHz")
+    code = main(["swap", str(tmp_path / "d.toml"), "U1=ctl-quick", "--library", str(DATA),
+                 "--library", str(tmp_path)])
+    out = capsys.readouterr().out
+    assert code == 1 and "CS hold U2: pass → fail" in out
+    # the controller's lag is one of the values behind the change, on the CS line
+    assert "U1 t_cs_hold (none) → 1 ns" in out
