@@ -727,6 +727,17 @@ def test_spi_max_clock_and_what_limits_it(budget):
     budget.set(clock=10e6)
 
 
+def test_spi_budget_shows_a_mode_the_display_does_not_take(budget):
+    # the built-in display class states modes 0 and 3 (common practice, no source)
+    budget.set(clock=10e6, spi_mode=1)
+    mode = {c.subject: c for c in budget.bus_result.checks if c.id == "spi-mode"}
+    assert mode["U12"].status == "fail" and mode["U1"].status == "pass"
+    assert "SPI mode 1 is not one of U12" in budget.checks_html.value
+    assert "FAIL" in budget.status_html.value.upper()
+    budget.set(clock=10e6, spi_mode=3)
+    assert all(c.status == "pass" for c in budget.bus_result.checks if c.id == "spi-mode")
+
+
 def test_spi_budget_refuses_a_design_without_that_bus():
     with pytest.raises(InputError, match="no SPI bus of that id"):
         SpiBudget(DEMO, bus="sensors")
