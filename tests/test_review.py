@@ -518,9 +518,9 @@ def test_timing_budget_agrees_with_the_result(demo):
     flash = plotdata.timing_budget_data(design.bus("flash"), design)
     rows = {(p, c): d for p, c, d in flash.rows}
     assert rows[("copi-setup U7", "output valid (t_valid)")] == MCU_T_VALID
-    assert rows[("copi-setup U7", "required setup or hold")] == FLASH_T_SETUP
+    assert rows[("copi-setup U7", "required setup, hold or width")] == FLASH_T_SETUP
     assert rows[("cipo-setup U7", "output valid (t_valid)")] == FLASH_T_VALID
-    assert rows[("cipo-setup U7", "required setup or hold")] == MCU_T_SETUP
+    assert rows[("cipo-setup U7", "required setup, hold or width")] == MCU_T_SETUP
 
 
 def test_plotdata_refuses_the_wrong_bus(demo):

@@ -343,8 +343,14 @@ def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
             _timing_value(p, "t_hold"), _timing_value(p, "t_cs_setup"),
             _timing_value(p, "f_max"),
             {n: _sourced_text(p, n) for n in ("t_valid", "t_setup", "t_hold", "t_cs_setup",
-                                              "t_cs_hold", "t_cs_valid", "f_max")},
-            t_cs_valid=t_cs_valid, t_cs_hold=_timing_value(p, "t_cs_hold")))
+                                              "t_cs_hold", "t_cs_valid", "f_max", "t_high",
+                                              "t_low")},
+            t_cs_valid=t_cs_valid, t_cs_hold=_timing_value(p, "t_cs_hold"),
+            t_high=_timing_value(p, "t_high"), t_low=_timing_value(p, "t_low")))
+    unpulsed = [p.ref for p in periph_t if p.t_high is None and p.t_low is None]
+    if unpulsed:
+        notes.append(f"SCLK high and low pulses not checked at {and_list(unpulsed)}: no "
+                     "t_high or t_low recorded (the shortest pulse the input takes)")
     terms = budget_terms(mode, ctl, periph_t, t_bridge)
     f_limits = []
     for d in [controller] + peripherals + bridges:

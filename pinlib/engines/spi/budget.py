@@ -38,6 +38,9 @@ class PeripheralTiming:
         ``"rise"`` releases it: CS is active low); None as above. [s]
     t_valid, t_setup, t_hold, t_cs_setup, t_cs_hold : float or None
         The peripheral's timing values. [s]
+    t_high, t_low : float or None
+        The shortest SCLK high and low pulse its input takes (minimum); None: not
+        checked. [s]
     t_cs_valid : float or None
         CS asserted to its first CIPO bit valid at its pin (CPHA 0), maximum. [s]
     f_max : float or None
@@ -59,6 +62,8 @@ class PeripheralTiming:
     sources: dict = field(default_factory=dict)
     t_cs_valid: float | None = None
     t_cs_hold: float | None = None
+    t_high: float | None = None
+    t_low: float | None = None
 
 
 @value_class(frozen=True)
@@ -196,7 +201,8 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
     -------
     list of Term
         COPI setup and hold, CIPO setup and hold and CS setup and hold for each
-        peripheral that has the signals, and in a CPHA 0 mode the first CIPO bit after CS where the
+        peripheral that has the signals, its SCLK high and low pulses where it records
+        their minimum, and in a CPHA 0 mode the first CIPO bit after CS where the
         peripheral records ``t_cs_valid``; a term whose inputs are missing (no CIPO
         route, no ``t_valid``) is left out, and the caller says so.
     """
@@ -210,6 +216,18 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
         # the transfer's last edge returns SCLK to its idle level
         s_last = p.sclk["fall" if mode.idle == "low" else "rise"]
         src = p.sources
+        # the pulses at its input: from one edge's crossing of its far threshold to the
+        # next edge's of its near one (an SCLK whose rise and fall arrive apart narrows
+        # one of them)
+        for tid, name, start, end in (("sclk-high", "t_high", "rise", "fall"),
+                                      ("sclk-low", "t_low", "fall", "rise")):
+            need = getattr(p, name)
+            if need is not None:
+                terms.append(Term(
+                    tid, p.ref, 0.5, p.sclk[end].early - p.sclk[start].late, float(need),
+                    src.get(name, ""),
+                    {"half_period": "T/2", f"sclk_{start}_late": p.sclk[start].late,
+                     f"sclk_{end}_early": p.sclk[end].early, name: float(need)}))
         if p.copi is not None:
             tv = _or0(controller.t_valid)
             terms.append(Term(

@@ -31,6 +31,10 @@ _TERM_TEXT = {
                   "available hold {avail} against the controller's t_hold {req}"),
     "cs-setup": ("CS setup at {ref}", "CS leads the first edge by {avail} against "
                                       "t_cs_setup {req}"),
+    "sclk-high": ("SCLK high pulse at {ref}", "the high pulse lasts {avail} at its input "
+                                              "against t_high {req}"),
+    "sclk-low": ("SCLK low pulse at {ref}", "the low pulse lasts {avail} at its input "
+                                            "against t_low {req}"),
     "cs-hold": ("CS hold at {ref}", "CS stays asserted {avail} after the last edge against "
                                     "t_cs_hold {req}"),
     "cipo-first-bit": ("first CIPO bit at the controller from {ref} (driven when CS "
@@ -60,6 +64,7 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
     -------
     BusResult
         One line result per routed signal; checks ``copi-setup``, ``copi-hold``,
+        ``sclk-high``, ``sclk-low`` (a peripheral that records ``t_high``, ``t_low``),
         ``cipo-setup``, ``cipo-hold``, ``cs-setup``, ``cs-hold``, ``cipo-first-bit`` (CPHA 0, a
         peripheral that records ``t_cs_valid``; per peripheral), ``f-max``
         (per part) and ``spi-mode`` (per part that states its modes); figures
@@ -179,5 +184,5 @@ def term_check(t: Term, clock: float, warn: float, mode: int) -> Check:
 
 #: The requirement of each term, by the key of its details, as the part records it.
 _REQUIRED_FIELDS = {"t_setup": "t_setup", "t_hold": "t_hold", "t_cs_setup": "t_cs_setup",
-                    "t_cs_hold": "t_cs_hold",
+                    "t_cs_hold": "t_cs_hold", "t_high": "t_high", "t_low": "t_low",
                     "t_setup_controller": "t_setup", "t_hold_controller": "t_hold"}
