@@ -483,7 +483,8 @@ def _pin_of(key: str) -> str | None:
 _TIMING_SIGNAL = {
     "peripheral": {"timing.t_valid": "cipo", "timing.t_cs_valid": "cipo",
                    "timing.t_setup": "copi", "timing.t_hold": "copi",
-                   "timing.t_cs_setup": "cs", "timing.t_cs_hold": "cs"},
+                   "timing.t_cs_setup": "cs", "timing.t_cs_hold": "cs",
+                   "timing.t_high": "sclk", "timing.t_low": "sclk"},
     "controller": {"timing.t_valid": "copi", "timing.t_setup": "cipo",
                    "timing.t_hold": "cipo", "timing.t_cs_setup": "cs",
                    "timing.t_cs_hold": "cs"},
