@@ -61,9 +61,9 @@ def test_a_mode_the_parts_state_passes_and_cites_each_file(tmp_path, parts):
     got = _modes(res)
     assert set(got) == {"U1", "U2", "U3"}
     assert all(c.status == "pass" and c.value is True for c in got.values())
-    assert got["U2"].source == "per-03 timing.spi_modes (invented sheet A, table 3)"
+    assert got["U2"].source == "per-03 spi_modes: invented sheet A, table 3"
     # the child restates nothing: the list and its source are its class's
-    assert got["U3"].source == "per-03 timing.spi_modes (invented sheet A, table 3)"
+    assert got["U3"].source == "per-03 spi_modes: invented sheet A, table 3"
     assert got["U2"].details == {"mode": 3, "modes": [0, 3]}
     assert "SPI mode 3 is one of U2's modes (0 and 3)" == got["U2"].message
 
@@ -151,8 +151,8 @@ def test_built_in_classes_state_modes_typical_of_their_kind():
     assert tuple(lib.get("nor-flash-spi").timing.spi_modes) == (0, 3)
     # common practice, no source: a controller sets CPOL and CPHA in a register
     assert tuple(lib.get("mcu-3v3").timing.spi_modes) == (0, 1, 2, 3)
-    assert lib.get("mcu-3v3").timing.spi_modes.cited("timing.spi_modes") == (
-        "mcu-3v3 timing.spi_modes (typical of the class (common practice))")
+    assert lib.get("mcu-3v3").timing.spi_modes.cited("spi_modes") == (
+        "mcu-3v3 spi_modes: typical of the class (common practice)")
 
 
 def _new(tmp_path, *parts, library=None):

@@ -160,10 +160,10 @@ class StatedList(tuple):
         return out
 
     def cited(self, field: str) -> str:
-        """``'nor-flash-spi timing.spi_modes (typical of the class)'``: the part that set
-        it, the field, and its file's source (or basis)."""
+        """``'nor-flash-spi spi_modes: typical of the class'``: the part that set it, the
+        field, and its file's source (or basis), as a timing value's source reads."""
         said = self.source or self.basis
-        return f"{self.origin} {field}" + (f" ({said})" if said else "")
+        return f"{self.origin} {field}" + (f": {said}" if said else "")
 
 
 def modes_parser(raw, name=None):

@@ -43,7 +43,7 @@ def mode_limits(devices) -> tuple[list[ModeLimit], list[str]]:
             if any(getattr(timing, n) is not None for n in _SPI_TIMING):
                 silent.append(d.ref)
         else:
-            limits.append((d.ref, tuple(modes), modes.cited("timing.spi_modes")))
+            limits.append((d.ref, tuple(modes), modes.cited("spi_modes")))
     return limits, silent
 
 
