@@ -28,6 +28,15 @@ def _part(tmp_path, base: str, pid: str, timing: str) -> None:
         f"[timing]\n{timing}", encoding="utf-8")
 
 
+def _quick_release(tmp_path):
+    """A controller that releases CS 1 ns after the last edge and a peripheral that
+    needs 5 ns (both invented test data), at 1 MHz: (design, bus)."""
+    _part(tmp_path, "pp-ctrl", "ctl-quick", 't_cs_hold = "1 ns"\n')
+    _part(tmp_path, "pp-periph", "per-hold", 't_cs_hold = "5 ns"\n')
+    return write_design(tmp_path, controller="ctl-quick", peripherals=("per-hold",),
+                        extra_library=tmp_path, clock="1 MHz")
+
+
 def _flights(sa, bus, sig):
     case = sa.lines[sig].cases["U1"]
     rx = endpoint(bus.devices[1], f"spi-{sig}", bus)
@@ -64,10 +73,7 @@ def test_a_controller_that_releases_cs_at_once_fails_a_stated_hold(tmp_path):
     # the controller states it releases CS 1 ns after the last edge; the peripheral
     # needs 5 ns (both invented test data): the hold is short at every clock, and as
     # a datasheet limit it fails
-    _part(tmp_path, "pp-ctrl", "ctl-quick", 't_cs_hold = "1 ns"\n')
-    _part(tmp_path, "pp-periph", "per-hold", 't_cs_hold = "5 ns"\n')
-    d, bus = write_design(tmp_path, controller="ctl-quick", peripherals=("per-hold",),
-                          extra_library=tmp_path, clock="1 MHz")
+    d, bus = _quick_release(tmp_path)
     sa = spi.spi_analysis(bus, d)
     t = next(t for t in sa.terms if t.id == "cs-hold")
     sclk, cs = _flights(sa, bus, "sclk"), _flights(sa, bus, "cs")
@@ -101,10 +107,7 @@ def test_no_cs_line_no_hold(tmp_path):
 def test_the_budget_chart_draws_the_hold(tmp_path):
     from pinlib.present import plotdata
 
-    _part(tmp_path, "pp-ctrl", "ctl-quick", 't_cs_hold = "1 ns"\n')
-    _part(tmp_path, "pp-periph", "per-hold", 't_cs_hold = "5 ns"\n')
-    d, bus = write_design(tmp_path, controller="ctl-quick", peripherals=("per-hold",),
-                          extra_library=tmp_path, clock="1 MHz")
+    d, bus = _quick_release(tmp_path)
     tb = plotdata.timing_budget_data(bus, d)
     path = "cs-hold U2"
     # derived: the lag the controller states is the time available, as a CS lead is
