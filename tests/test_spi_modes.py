@@ -140,9 +140,41 @@ def test_a_bad_list_is_refused_with_file_line_and_field(tmp_path, text, words):
 
 def test_the_json_schema_says_what_a_file_writes():
     prop = part_json_schema()["$defs"]["Timing"]["properties"]["spi_modes"]
-    assert prop["type"] == "array" and prop["uniqueItems"] is True
-    assert prop["items"] == {"type": "integer", "minimum": 0, "maximum": 3}
+    array, table = prop["anyOf"]
+    assert array["type"] == "array" and array["uniqueItems"] is True
+    assert array["items"] == {"type": "integer", "minimum": 0, "maximum": 3}
+    assert table["properties"]["value"]["type"] == "array"
+    assert table["required"] == ["value"] and table["additionalProperties"] is False
     json.dumps(prop)
+
+
+def test_a_list_with_its_own_source_cites_it(tmp_path):
+    # the table form: its own source wins over the file's provenance (invented values)
+    lib = tmp_path / "lib"
+    lib.mkdir()
+    (lib / "own.toml").write_text(PART.format(
+        id="own", base="pp-periph", source="file-wide sheet",
+        timing='[timing]\nspi_modes = { value = [3, 0], source = "sheet D, §6.2" }\n'),
+        encoding="utf-8")
+    modes = load_library([lib, DATA], env=False).get("own").timing.spi_modes
+    assert tuple(modes) == (0, 3)
+    # its basis is the file's (datasheet), as a Sourced value's that states none
+    assert (modes.source, modes.basis) == ("sheet D, §6.2", "datasheet")
+    assert modes.cited("spi_modes") == "own spi_modes: sheet D, §6.2"
+    (lib / "own.toml").write_text(PART.format(
+        id="own", base="pp-periph", source="x",
+        timing='[timing]\nspi_modes = { value = [0], typ = [0] }\n'), encoding="utf-8")
+    with pytest.raises(InputError, match="typ"):
+        load_library([lib, DATA], env=False).get("own")
+
+
+def test_parts_record_says_how_to_write_the_list(tmp_path, parts, capsys):
+    from pinlib.cli import main
+
+    code = main(["parts", "record", "per-03", "timing.spi_modes", "0, 3", "--source", "x",
+                 "--library", str(DATA), "--library", str(parts)])
+    err = " ".join(capsys.readouterr().err.split())
+    assert code == 2 and "spi_modes = { value = [...], source = \"...\" }" in err
 
 
 def test_built_in_classes_state_modes_typical_of_their_kind():

@@ -106,9 +106,17 @@ Level = Annotated[Sourced, Convert(threshold_parser())]
 
 def _modes_written() -> dict:
     """What a part file writes for ``spi_modes``, for the JSON Schema."""
-    return {"type": "array", "items": {"type": "integer", "minimum": 0, "maximum": 3},
-            "minItems": 1, "maxItems": 4, "uniqueItems": True,
-            "description": "the SPI modes (CPOL·2 + CPHA) the part works in, e.g. [0, 3]"}
+    from pinlib.library.values import BASES
+
+    text = "the SPI modes (CPOL·2 + CPHA) the part works in, e.g. [0, 3]"
+    array = {"type": "array", "items": {"type": "integer", "minimum": 0, "maximum": 3},
+             "minItems": 1, "maxItems": 4, "uniqueItems": True, "description": text}
+    table = {"type": "object", "description": f"{text}, with where it came from",
+             "properties": {"value": dict(array),
+                            "basis": {"enum": list(BASES[:-1])},
+                            "source": {"type": "string"}},
+             "required": ["value"], "additionalProperties": False}
+    return {"anyOf": [array, table], "description": text}
 
 
 class Edge(Record):

@@ -132,16 +132,17 @@ class Sourced:
 
 
 class StatedList(tuple):
-    """A list a part states (its SPI modes) that keeps, as :class:`Sourced` does, the
-    part whose file set it and that file's basis and source (a part that extends a class
-    and does not restate the list cites the class's file, not its own).
+    """A list a part states (its SPI modes) that keeps, as :class:`Sourced` does, its
+    own basis and source where the file gives them (``{ value = [0, 3], source = ...
+    }``), else those of the file that set it; and the part whose file that is (a part
+    that extends a class and does not restate the list cites the class's file).
 
     Attributes
     ----------
     origin : str or None
         The part id whose file set the list.
     basis, source : str or None
-        That file's provenance.
+        Its own, or that file's provenance.
     """
 
     origin: str | None = None
@@ -156,7 +157,12 @@ class StatedList(tuple):
         out = StatedList(self)
         out.origin = origin
         prov = provenance or {}
-        out.basis, out.source = prov.get("basis") or "generic", prov.get("source") or None
+        if self.basis is None and self.source is None:
+            out.basis = prov.get("basis") or "generic"
+            out.source = prov.get("source") or None
+        else:  # its own; a basis it does not state is its file's, as a Sourced's
+            out.basis = self.basis or prov.get("basis") or "generic"
+            out.source = self.source
         return out
 
     def cited(self, field: str) -> str:
@@ -168,10 +174,17 @@ class StatedList(tuple):
 
 def modes_parser(raw, name=None):
     """A record converter: a list of SPI modes (whole numbers 0 to 3, each once, at least
-    one) -> :class:`StatedList`."""
+    one), plain or as ``{ value = [...], basis = ..., source = ... }`` ->
+    :class:`StatedList`."""
     if isinstance(raw, StatedList):
         return raw
     field = _field_name(name)
+    basis = source = None
+    if isinstance(raw, dict):
+        if "typ" in raw:  # a typical list of modes means nothing
+            raise UnitError(M.VALUE_TABLE_UNKNOWN_KEY.format(key="typ"), field=field,
+                            expected="only value, basis, source")
+        raw, basis, source, _ = _split_table(raw, field)
     if not isinstance(raw, (list, tuple)) or not raw:
         raise UnitError(M.SPI_MODES_BAD_LIST, field=field, value=raw,
                         expected="e.g. [0, 3]")
@@ -182,7 +195,9 @@ def modes_parser(raw, name=None):
     if len(set(raw)) != len(raw):
         raise UnitError(M.SPI_MODES_BAD_LIST, field=field, value=list(raw),
                         expected="e.g. [0, 3]")
-    return StatedList(sorted(raw))
+    out = StatedList(sorted(raw))
+    out.basis, out.source = basis, source
+    return out
 
 
 def _split_table(raw, field):
