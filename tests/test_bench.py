@@ -379,3 +379,55 @@ def test_gpio_contributions_split_traces_cables_and_extra(gpio_design, tmp_path)
     assert got.cb_model == pytest.approx(32e-12)
     assert got.verdict == "above"
     assert [r.split(" ")[0] for r in got.revisit[:4]] == ["pins", "cables", "extra", "traces"]
+
+
+# ---------------------------------------------------------------- the lines offered
+# (the workbench's bench panel offers these: pinlib.engines.bench.measurable_lines)
+
+
+def test_measurable_lines_are_those_compare_rise_takes(gpio_design, design):
+    from pinlib.engines.bench import measurable_lines
+
+    d = load_design(gpio_design())
+    offered, refused = measurable_lines(d)
+    assert [(x.bus, x.segment, x.signal) for x in offered] == [("reset", None, "reset")]
+    assert offered[0].place() == "reset, line reset"
+    # each line not offered is one compare_rise refuses, with the same words
+    assert [(bus, line) for bus, line, _ in refused] == [
+        ("en", "enable"), ("two", "reset"), ("two", "gpio_out")]
+    for bus, line, err in refused:
+        with pytest.raises(PinlibError) as got:
+            compare_rise(d, bus, 300e-9, 10e-12, signal=line)
+        assert got.value.message == err.message
+    # an I2C bus: SDA and SCL; an SPI bus: refused as a whole, as compare_rise does
+    d = load_design(design)
+    offered, refused = measurable_lines(d)
+    assert [(x.bus, x.signal, x.place()) for x in offered] == [
+        ("i2c0", "sda", "i2c0, SDA"), ("i2c0", "scl", "i2c0, SCL")]
+    assert [(bus, line) for bus, line, _ in refused] == [("s", None)]
+    with pytest.raises(PinlibError) as got:
+        compare_rise(d, "s", 300e-9, 10e-12)
+    assert got.value.message == refused[0][2].message
+
+
+def test_measurable_lines_name_each_segment_of_a_bridged_bus():
+    from pathlib import Path
+
+    from pinlib.engines.bench import measurable_lines
+
+    demo = Path(__file__).resolve().parents[1] / "workbooks" / "designs" / "demo-board.toml"
+    offered, _ = measurable_lines(load_design(demo))
+    bridged = [(x.segment, x.signal) for x in offered if x.bus == "sensors"]
+    assert bridged == [("main-3v3", "sda"), ("main-3v3", "scl"), ("sensor-1v8", "sda"),
+                       ("sensor-1v8", "scl")]
+    assert all(x.segment is None for x in offered if x.bus == "power")
+
+
+def test_rise_without_the_probe_is_kept_out_of_the_command(gpio_design):
+    d = load_design(gpio_design())
+    t = _gpio_reading(GPIO_CB, 10e-12)
+    got = compare_rise(d, "reset", t, 10e-12, signal="reset")
+    # derived: the same RC charge with the probe's 10 pF taken off, t x Cb / (Cb + Cp)
+    assert got.rise_alone == pytest.approx(t * 20e-12 / 30e-12, rel=1e-9)
+    assert got.rise_alone == pytest.approx(_gpio_reading(GPIO_CB, 0.0), rel=1e-9)
+    assert "rise_alone" not in got.to_json() and "without the probe" not in got.format_text()

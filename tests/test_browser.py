@@ -119,15 +119,19 @@ _PER_LENGTH = ("C per length", "Delay per length", "C (pF/cm)", "Delay (ps/cm)")
 SPECS = [
     Spec("01-start-a-design.ipynb",
          required=("Title", "Mode", "Supply", "Controller", "Peripheral", "Trace", "Length",
-                   "Extra C", "Rp", "Rise", "Probe", "Save as"),
+                   "Extra C", "Rp", "Design", "Line", "Rise", "Probe", "Save as"),
          change=("Mode", "standard"),
          bad=(("Supply", "4.7 kohms", None), ("Supply", "-3.3", None)),
          may_hide=_PER_LENGTH,
          # 60 characters: a board's title as people write them
          long_text=(("Title", "Sensor board rev. C: I2C bus from the MCU to the front panel"),
+                    ("Design", "designs/gpio-reset-board.toml"),
                     ("Save as", "designs/sensor-board-rev-c.toml")),
          long_item=("Peripheral", "board-to-board-connector", "Add", "Placed"),
-         low_bad=("Rp ±", "abc", "1 %")),
+         low_bad=("Rp ±", "abc", "1 %"),
+         # the bench panel's lines: the bus built here and the saved GPIO example's reset
+         # line the workbook loads (its answer then shows in the control column)
+         each_option=("Line",)),
     Spec("02-push-pull-line.ipynb",
          required=("Driver", "Output pin", "Supply", "Receiver", "Trace", "Length", "Rs"),
          change=("Trace", None),

@@ -233,7 +233,7 @@ def test_a_series_keeps_its_colour_whichever_others_are_drawn():
     full = [("copi-setup U7", "output valid (t_valid)", 8 * NANO),
             ("copi-setup U7", "data or CS flight", 1 * NANO),
             ("copi-setup U7", "SCLK flight", -0.5 * NANO),
-            ("copi-setup U7", "required setup or hold", 5 * NANO),
+            ("copi-setup U7", "required setup, hold or width", 5 * NANO),
             ("cipo-setup U7", "bridging parts", 2 * NANO)]
     flight = [("cs-setup U7", "data or CS flight", 1 * NANO)]
     budgets = [charts.timing_budget(full, available=20 * NANO,
@@ -879,7 +879,7 @@ def _long_labels(width: int) -> dict:
     rows = [(f"{p} U7", c, d * NANO) for p in ("copi-setup", "copi-hold", "cipo-setup",
                                                "cipo-hold", "cs-setup")
             for c, d in (("output valid (t_valid)", 8.0), ("data or CS flight", 1.2),
-                         ("SCLK flight", -0.4), ("required setup or hold", 5.0),
+                         ("SCLK flight", -0.4), ("required setup, hold or width", 5.0),
                          ("bridging parts", 2.0))]
     paths = list(dict.fromkeys(p for p, _, _ in rows))
     cb = np.geomspace(5, 800, 41) * PICO

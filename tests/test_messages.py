@@ -616,6 +616,18 @@ def _(env):
     return _fails(lambda e: e.part(PART.format(id="p") + '\n[timing]\nf_max = "0 Hz"\n'), env)
 
 
+@case("SPI_MODES_BAD_LIST")
+def _(env):
+    return _fails(lambda e: e.part(PART.format(id="p") + "\n[timing]\nspi_modes = [0, 0]\n"),
+                  env)
+
+
+@case("SPI_MODE_NOT_0_TO_3")
+def _(env):
+    return _fails(lambda e: e.part(PART.format(id="p") + "\n[timing]\nspi_modes = [4]\n"),
+                  env)
+
+
 def _typ_beyond(env):
     from pinlib.library.plausible import part_warnings
 

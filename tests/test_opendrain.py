@@ -352,6 +352,50 @@ def test_setup_budget(tmp_path):
     assert fig(res, "scl_frequency_effective") == pytest.approx(f, rel=1e-9)
 
 
+def _target_with(tmp_path, pid: str, timing: str) -> None:
+    """t-target (invented test data) as ``pid`` with its [timing] t_vd_dat line replaced."""
+    text = (PARTS / "t-target.toml").read_text(encoding="utf-8")
+    text = text.replace('id = "t-target"', f'id = "{pid}"')
+    text = text.replace('t_vd_dat = "0.9 µs"\n', timing)
+    (tmp_path / f"{pid}.toml").write_text(text, encoding="utf-8")
+
+
+def _setup_check(tmp_path, pid):
+    path = tmp_path / "d.toml"
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+               f'{{ ref = "U2", part = "{pid}" }}']
+    path.write_text(HEAD + one_bus(pullup="2.2 kΩ", devices=devices), encoding="utf-8")
+    d = load_design(path, library_folders=[PARTS, tmp_path])
+    res = opendrain.evaluate_bus(d.buses[0], d)
+    return res, res.check("setup-time")
+
+
+def test_a_later_acknowledge_sets_the_sda_setup_budget(tmp_path):
+    # the acknowledge is a bit on SDA, set up before the ninth clock as a data bit
+    # before its clock (UM10204 rev. 6, table 10: tVD;ACK beside tVD;DAT); a target whose
+    # tVD;ACK 1.1 µs is later than its tVD;DAT 0.5 µs (invented test data) leaves the
+    # budget tLOW − 1.1 µs − tr (derived, as test_setup_budget)
+    _target_with(tmp_path, "t-ack-late", 't_vd_dat = "0.5 µs"\nt_vd_ack = "1.1 µs"\n')
+    res, chk = _setup_check(tmp_path, "t-ack-late")
+    t_low = 2.5e-6 * 1.3 / 1.9
+    assert chk.value == pytest.approx(t_low - 1.1e-6 - fig(res, "rise_time"), rel=1e-9)
+    assert "tVD;ACK 1.1 µs (U2) − tr" in chk.message
+    # an earlier acknowledge leaves the data valid time in charge
+    _target_with(tmp_path, "t-ack-early", 't_vd_dat = "0.5 µs"\nt_vd_ack = "0.3 µs"\n')
+    res, chk = _setup_check(tmp_path, "t-ack-early")
+    assert chk.value == pytest.approx(t_low - 0.5e-6 - fig(res, "rise_time"), rel=1e-9)
+    assert "tVD;DAT 500 ns (U2) − tr" in chk.message
+
+
+def test_a_stated_valid_time_beyond_the_specifications_is_not_called_a_bridge_delay(
+        tmp_path):
+    # a target stating tVD;DAT 1 µs, above Fast-mode's 0.9 µs (invented test data), on a
+    # bus without a bridge: the message said "incl. bridge delays"
+    _target_with(tmp_path, "t-slow-data", 't_vd_dat = "1 µs"\n')
+    _, chk = _setup_check(tmp_path, "t-slow-data")
+    assert "tVD;DAT 1 µs (U2) − tr" in chk.message and "bridge" not in chk.message
+
+
 # --------------------------------------------------------------------------- domains and power
 
 

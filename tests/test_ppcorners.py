@@ -117,3 +117,9 @@ def test_buses_it_does_not_serve_stay_with_the_engine():
     assert ppcorners.corner_rows(flash, d, nominal) is not None
     nominal.add(check_true("made-up", True, "common practice, no source", "a made-up check"))
     assert ppcorners.corner_rows(flash, d, nominal) is None
+
+
+def test_the_search_note_counts_one_parameter_in_the_singular():
+    # English: "1 parameter", "3 parameters" (the --corners note read "of 1 parameters")
+    assert ppworst.method_text(1) == "all 2 corners of 1 parameter"
+    assert ppworst.method_text(3) == "all 8 corners of 3 parameters"

@@ -1304,3 +1304,16 @@ def test_the_gpio_example_design_passes_with_figures_worked_by_hand():
     assert ln.figures["load_capacitance"].value < gpio_out.edges[0].load.value
     first = gpio_out.edges[0].rise.value
     assert 0.5 * first < ln.figures["edge_rise_time"].value < first
+
+
+def test_the_electrical_length_note_says_the_rule_once():
+    # it read "electrically long (electrically long when the one-way delay exceeds ...)"
+    d = load_design(Path(__file__).resolve().parents[1] / "workbooks/designs/demo-board.toml")
+    notes = [n for ln in evaluate_bus(d.bus("flash"), d).lines for n in ln.notes
+             if "pins alone" in n]
+    assert notes
+    for n in notes:
+        assert n.count("electrically") == 1
+        assert re.search(r"electrically (long, beyond|short, within) 1/6 of the edge "
+                         r"\(Johnson & Graham, High-Speed Digital Design, 1993; common "
+                         r"practice\)$", n), n

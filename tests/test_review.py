@@ -498,7 +498,7 @@ def test_timing_budget_agrees_with_the_result(demo):
         tb = plotdata.timing_budget_data(bus, design)
         # derived from the SPI budget structure (docs/references.md, SPI): T/2 at the clock
         assert tb.period == pytest.approx(1.0 / bus.clock, rel=1e-15)
-        budget_checks = [c for c in br.checks if c.id not in ("f-max", "supply-range")]
+        budget_checks = [c for c in br.checks if c.id not in ("f-max", "spi-mode", "supply-range")]
         assert len(tb.margins) == len(budget_checks)
         for c in budget_checks:
             path = f"{c.id} {c.subject}"
@@ -518,9 +518,9 @@ def test_timing_budget_agrees_with_the_result(demo):
     flash = plotdata.timing_budget_data(design.bus("flash"), design)
     rows = {(p, c): d for p, c, d in flash.rows}
     assert rows[("copi-setup U7", "output valid (t_valid)")] == MCU_T_VALID
-    assert rows[("copi-setup U7", "required setup or hold")] == FLASH_T_SETUP
+    assert rows[("copi-setup U7", "required setup, hold or width")] == FLASH_T_SETUP
     assert rows[("cipo-setup U7", "output valid (t_valid)")] == FLASH_T_VALID
-    assert rows[("cipo-setup U7", "required setup or hold")] == MCU_T_SETUP
+    assert rows[("cipo-setup U7", "required setup, hold or width")] == MCU_T_SETUP
 
 
 def test_plotdata_refuses_the_wrong_bus(demo):

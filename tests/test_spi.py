@@ -418,8 +418,8 @@ def test_the_first_cipo_bit_after_cs_is_budgeted_in_cpha_0(tmp_path, mode):
     t = terms["cipo-first-bit"]
     p = sa.peripherals[0]
     assert (t.a, t.subject, t.required) == (0.5, "U2", pytest.approx(3e-9))  # pp-ctrl t_setup
-    assert t.b == pytest.approx(-(p.cs.late + 25e-9 + p.cipo.late), rel=1e-12)
-    assert p.cs.late > 0 and p.cipo.late > 0
+    assert t.b == pytest.approx(-(p.cs["fall"].late + 25e-9 + p.cipo.late), rel=1e-12)
+    assert p.cs["fall"].late > 0 and p.cipo.late > 0
     res = evaluate_bus(bus, d)
     chk = next(c for c in res.checks if c.id == "cipo-first-bit")
     period = 1 / 5e6

@@ -21,6 +21,9 @@ must show them (pixel variety and the chart palette's colours).
 
 from __future__ import annotations
 
+import html
+import json
+import math
 import re
 import shutil
 import subprocess
@@ -35,6 +38,7 @@ pytest.importorskip("altair")
 pytest.importorskip("vl_convert")
 
 from pinlib.core.errors import DesignError, InputError, WriteError  # noqa: E402
+from pinlib.core.quantity import format_si  # noqa: E402
 from pinlib.core.tomlfile import tomllib  # noqa: E402
 from pinlib.engines.dispatch import check_design, check_file  # noqa: E402
 from pinlib.library import load_library  # noqa: E402
@@ -259,6 +263,149 @@ def test_bench_messages_write_numbers_with_si_prefixes(library):
     shown = b.bench_html.value
     assert "faster than the probe" in shown and not re.search(r"\de[+-]\d", shown)
     assert re.search(r"k·Rp·C_probe = [\d.]+ ns", shown), shown
+
+
+# ---------------------------------------------------------------- the bench panel on a
+# saved design's line: a GPIO line an open-drain pin drives (pinlib measured's answer)
+GPIO_RESET = ROOT / "workbooks" / "designs" / "gpio-reset-board.toml"
+
+
+def test_bench_panel_offers_a_gpio_line_an_open_drain_pin_drives(library):
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    assert b.bench_line.options == (("SDA of the bus built here", ""),)
+    b.set(bench_file=str(GPIO_RESET))
+    # reset: the supervisor's open-drain output with the line's 10 kΩ pull-up; not
+    # fpga-enable's enable, which the microcontroller drives push-pull
+    assert b.bench_line.options == (("SDA of the bus built here", ""),
+                                    ("reset, line reset", "reset/reset"))
+    assert b.bench_line.value == "reset/reset"  # the first line offered
+    said = " ".join(html.unescape(re.sub(r"<[^>]+>", " ", b.bench_line_note.value)).split())
+    assert "1 line of gpio-reset-board.toml offered" in said
+    assert ("fpga-enable, line enable: no open-drain pin drives this line" in said
+            and "U1.gpio_out drives it push-pull" in said), said
+    with pytest.raises(InputError, match="allowed values") as refused:
+        b.set(bench_line="fpga-enable/enable")
+    assert 'expected "" (SDA of the bus built here), reset/reset' in str(refused.value)
+    assert "not offered: no open-drain pin drives this line" in str(refused.value)
+
+
+def test_bench_panel_on_a_gpio_line_gives_pinlib_measureds_answer(library, capsys,
+                                                                 monkeypatch):
+    from pinlib.cli import main
+    from pinlib.engines.bench import compare_rise
+
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.set(bench_file=str(GPIO_RESET), bench_line="reset/reset", rise_measured=800e-9,
+          c_probe=10e-12, levels=(0.1, 0.9))
+    got = b.bench
+    # derived: same engine as pinlib measured (compare_rise on the same file and inputs)
+    engine = compare_rise(load_design(GPIO_RESET), "reset", 800e-9, 10e-12,
+                          levels=(0.1, 0.9), signal="reset")
+    assert got.comparison == engine and got.line.bus == "reset"
+    assert (got.rp, got.cb, got.cb_model) == (engine.rp, engine.cb, engine.cb_model)
+    # the command itself, on the same reading
+    assert main(["measured", str(GPIO_RESET), "--bus", "reset", "--line", "reset",
+                 "--rise", "800ns", "--probe", "10pF", "--levels", "10,90", "--json"]) == 0
+    cli = json.loads(capsys.readouterr().out)
+    assert cli == engine.to_json() and cli["verdict"] == "agrees"
+    # derived by hand from the RC charge through the line's pull-up (the design's
+    # lines.reset.pullup 10 kΩ; no part on the line counts a pull-up of its own):
+    # v(t) = V (1 - exp(-t / (Rp C))), so from 10 % to 90 % t = Rp C ln(0.9 / 0.1);
+    # C = Cb + C_probe = 800 ns / (10 kΩ x ln 9) = 36.410 pF, Cb = 26.410 pF, and
+    # without the probe the same levels take 10 kΩ x 26.410 pF x ln 9 = 580.28 ns
+    assert got.rp == pytest.approx(10e3, rel=1e-12)
+    c_total = 800e-9 / (10e3 * math.log(9.0))
+    assert got.cb == pytest.approx(c_total - 10e-12, rel=1e-9)
+    assert got.cb == pytest.approx(26.410e-12, rel=1e-4)
+    assert got.rise == pytest.approx(10e3 * got.cb * math.log(9.0), rel=1e-9)
+    assert got.rise == pytest.approx(580.28e-9, rel=1e-4)
+    # what the panel shows is that answer, with units and the command's verdict; a
+    # number is held to its unit (a no-break space), as the command's wrapping holds it
+    held = html.unescape(b.bench_html.value)
+    assert "26.4\u00a0pF" in held and "(±1\u00a0%)" in held and " pF" not in held, held
+    shown = held.replace("\u00a0", " ")
+    for text in ("Bus reset, line reset", "26.4 pF", "580 ns", "(10–90 %, as measured)",
+                 "the model's Cb <b>" + format_si(engine.cb_model, "F"),
+                 "The measurement agrees with the model"):
+        assert text in shown, (text, shown)
+    assert not re.search(r"\de[+-]\d", shown)
+
+
+def test_bench_panel_gpio_line_disagreeing_lists_what_to_revisit(library):
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.set(bench_file=str(GPIO_RESET), rise_measured=2e-6, c_probe=10e-12)
+    got = b.bench.comparison
+    assert got.verdict == "above" and got.revisit
+    shown = html.unescape(b.bench_html.value).replace("\u00a0", " ")
+    assert "The board holds more capacitance than the model" in shown
+    assert all(f"<li>{r}</li>" in shown for r in got.revisit)
+    # faster than the probe alone through 10 kΩ: refused beside the panel, no answer
+    b.set(rise_measured=20e-9)
+    assert b.bench is None and "faster than the probe" in b.bench_html.value
+    assert "Traceback" not in b.bench_html.value
+
+
+def test_bench_panel_offers_no_push_pull_line_no_line_without_pullup_and_no_spi_bus(
+        library, tmp_path, monkeypatch):
+    from test_bench import GPIO_DESIGN
+
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    path = tmp_path / "gpio.toml"
+    path.write_text(GPIO_DESIGN.replace("{internal}", "").replace("{tolerance}", ""),
+                    encoding="utf-8")
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.set(bench_file=str(path))
+    assert [v for _, v in b.bench_line.options] == ["", "reset/reset"]
+    said = " ".join(html.unescape(re.sub(r"<[^>]+>", " ", b.bench_line_note.value)).split())
+    for text in ("en, line enable: no open-drain pin drives this line",
+                 "two, line reset: the line has no pull-up",
+                 "two, line gpio_out: no open-drain pin drives this line"):
+        assert text in said, (text, said)
+    # an SPI bus is named, not offered; the demo's I2C lines are, per segment
+    b.set(bench_file=str(DEMO))
+    said = " ".join(html.unescape(re.sub(r"<[^>]+>", " ", b.bench_line_note.value)).split())
+    assert "flash (spi): not an open-drain bus" in said
+    assert "display (spi): not an open-drain bus" in said
+    assert not any(v.startswith(("flash", "display")) for _, v in b.bench_line.options)
+    assert ("sensors, segment sensor-1v8, SCL", "sensors/sensor-1v8/scl") in \
+        b.bench_line.options
+
+
+def test_bench_panel_i2c_reading_is_unchanged_by_a_saved_design(library):
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.set(pullup=2200.0, rise_measured=300e-9)
+    before, shown = b.bench, b.bench_html.value
+    b.set(bench_file=str(GPIO_RESET))
+    assert b.bench.line is not None and b.bench_html.value != shown
+    b.set(bench_line="")
+    assert b.bench == before and b.bench_html.value == shown
+    assert before.line is None and before.comparison is None
+    b.set(bench_file="")
+    assert b.bench_line.options == (("SDA of the bus built here", ""),)
+    assert b.bench_html.value == shown and b.bench_line_note.value == ""
+
+
+def test_bench_panel_a_design_that_cannot_be_read_says_why_and_keeps_the_lines(library,
+                                                                              tmp_path):
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.set(bench_file=str(GPIO_RESET))
+    for text, words in (("", "a design file path is needed"),
+                        (str(tmp_path / "nowhere.toml"), "file not found")):
+        b.bench_file.value = text
+        b.bench_load.click()
+        shown = html.unescape(b.bench_file_error.value)
+        assert words in shown and "still those of" in shown, shown
+        assert "Traceback" not in shown
+        assert b.bench_line.value == "reset/reset"
+    bad = tmp_path / "bad.toml"
+    bad.write_text('format = "pinlib.design/1"\n[[bus]]\nid = 3\n', encoding="utf-8")
+    b.bench_file.value = str(bad)
+    b.bench_load.click()
+    assert str(bad) in html.unescape(b.bench_file_error.value)
+    b.bench_file.value = str(GPIO_RESET)
+    b.bench_load.click()
+    assert b.bench_file_error.value == ""
 
 
 def test_saved_design_loads_and_checks_the_same(builder, tmp_path, library):
@@ -578,6 +725,17 @@ def test_spi_max_clock_and_what_limits_it(budget):
     budget.set(clock=f_max * 1.05)
     assert any(c.status == "fail" for _, _, c in budget.bus_result.all_checks())
     budget.set(clock=10e6)
+
+
+def test_spi_budget_shows_a_mode_the_display_does_not_take(budget):
+    # the built-in display class states modes 0 and 3 (common practice, no source)
+    budget.set(clock=10e6, spi_mode=1)
+    mode = {c.subject: c for c in budget.bus_result.checks if c.id == "spi-mode"}
+    assert mode["U12"].status == "fail" and mode["U1"].status == "pass"
+    assert "SPI mode 1 is not one of U12" in budget.checks_html.value
+    assert "FAIL" in budget.status_html.value.upper()
+    budget.set(clock=10e6, spi_mode=3)
+    assert all(c.status == "pass" for c in budget.bus_result.checks if c.id == "spi-mode")
 
 
 def test_spi_budget_refuses_a_design_without_that_bus():

@@ -23,7 +23,8 @@ from collections.abc import Callable, Mapping
 from typing import Any
 
 __all__ = ["FIGURES", "SHORT", "CHECKS", "figure_label", "short_label", "check_label",
-           "path_label", "sampled_check_label", "note_label", "shown_figures", "humanize"]
+           "path_label", "sampled_check_label", "note_label", "shown_figures", "humanize",
+           "and_list"]
 
 #: Figure id -> label, in the order a table lists them (units come with the values).
 FIGURES: dict[str, str] = {
@@ -126,6 +127,12 @@ _WORDS = {
 
 #: The lines of an open-drain bus, as figure id suffixes.
 _LINES = ("sda", "scl")
+
+
+def and_list(words) -> str:
+    """``["U2", "U3", "U4"]`` -> ``"U2, U3 and U4"``; one word alone; "" for none."""
+    words = [str(w) for w in words]
+    return ", ".join(words[:-1]) + f" and {words[-1]}" if len(words) > 1 else "".join(words)
 
 
 def humanize(ident: str) -> str:

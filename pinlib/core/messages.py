@@ -413,6 +413,9 @@ NO_DRIVER_ON_LINE = "no device drives this line"
 THRESHOLDS_INVERTED = ("v_il {v_il} lies above v_ih {v_ih} at every supply: no input "
                        "reads that way (the two swapped, or a slip?)")
 F_MAX_NOT_POSITIVE = "a maximum clock of 0 Hz allows no clock at all"
+SPI_MODES_BAD_LIST = ("a list of the SPI modes the part works in, each once (an empty "
+                      "list would allow none)")
+SPI_MODE_NOT_0_TO_3 = "an SPI mode is a whole number from 0 to 3 (CPOL·2 + CPHA)"
 STATUS_SET_ELSEWHERE = ("† {status} set by {check}: a check no part at {ref} can move "
                         "(pinlib check shows it)")
 LEVEL_BELOW_GROUND = "an output low level below ground at this rail"

@@ -23,7 +23,7 @@ from __future__ import annotations
 from dataclasses import field
 
 from pinlib.core import messages as M
-from pinlib.core.errors import InputError
+from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.protocols import is_open_drain
 from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
@@ -33,7 +33,8 @@ from pinlib.engines.pushpull import line_inputs
 from pinlib.model.design import Bus, Design
 from pinlib.model.design.objects import PULLUP_TOLERANCE
 
-__all__ = ["READING_TOLERANCE", "BenchComparison", "compare_rise"]
+__all__ = ["READING_TOLERANCE", "BenchComparison", "MeasurableLine", "compare_rise",
+           "measurable_lines"]
 
 #: The physics' names of the reading's values, and the command's options they come from.
 _OPTIONS = {"t_measured": ("--rise", "s"), "c_probe": ("--probe", "F"), "lo/hi": ("--levels", "")}
@@ -91,6 +92,9 @@ class BenchComparison:
         The bus's protocol (``i2c``, ``smbus``, ``gpio``).
     notes : list of str
         What the reading holds under (a GPIO line that push-pull pins also drive).
+    rise_alone : float or None
+        The rise between the same levels without the probe, at the nominal pull-up (not
+        in :meth:`to_json` nor the text: the workbench's bench panel shows it). [s]
     """
 
     bus: str
@@ -110,6 +114,18 @@ class BenchComparison:
     revisit: list = field(default_factory=list)
     protocol: str = "i2c"
     notes: list = field(default_factory=list)
+    rise_alone: float | None = None
+
+    def place(self) -> str:
+        """Where the reading was taken: ``bus reset, line reset`` or ``bus i2c0, segment
+        i2c0, SDA``."""
+        return f"bus {self.bus}, " + (f"line {self.signal}" if self.segment is None else
+                                      f"segment {self.segment}, {self.signal.upper()}")
+
+    def verdict_text(self) -> str:
+        """The verdict as a sentence (the revisit list follows it)."""
+        return {"agrees": M.BENCH_AGREES, "above": M.BENCH_ABOVE,
+                "below": M.BENCH_BELOW}[self.verdict]
 
     def to_json(self) -> dict:
         return {
@@ -128,10 +144,8 @@ class BenchComparison:
         """The comparison as text, each line wrapped to ``width`` (None: no limit)."""
         lo, hi = self.levels
         f = format_si
-        where = (f"line {self.signal}" if self.segment is None else
-                 f"segment {self.segment}, {self.signal.upper()}")
         lines = [
-            f"bus {self.bus}, {where}: rise "
+            f"{self.place()}: rise "
             f"{f(self.rise, 's')} ({lo:.0%}-{hi:.0%}) with a {f(self.c_probe, 'F')} probe, "
             f"Rp {f(self.rp, 'Ω')} (±{self.rp_tolerance:.0%})",
             f"  measured Cb  {f(self.cb, 'F')}  (range {f(self.cb_low, 'F')} to "
@@ -140,10 +154,8 @@ class BenchComparison:
             f"  modelled Cb  {f(self.cb_model, 'F')}  (" + ", ".join(
                 f"{k} {_cap(v)}" for k, v in self.contributions.items()) + ")",
         ]
-        verdict = {"agrees": M.BENCH_AGREES, "above": M.BENCH_ABOVE,
-                   "below": M.BENCH_BELOW}[self.verdict]
         lines += [f"  note: {n}" for n in self.notes]
-        lines.append("  " + verdict)
+        lines.append("  " + self.verdict_text())
         lines += [f"  - {r}" for r in self.revisit]
         if width is not None:
             from pinlib.core.wrapping import wrap
@@ -195,12 +207,10 @@ def compare_rise(design: Design, bus_id: str, rise: float, c_probe: float, *,
     elif bus.protocol == "gpio":
         got = _gpio_line(bus, design, signal, segment)
     else:
-        raise InputError(M.NOT_OPEN_DRAIN_BUS, field="--bus", value=f"{bus.id} ({bus.protocol})",
-                         expected="an i2c or smbus bus, or a gpio bus's line an open-drain "
-                                  "pin drives")
+        raise _not_open_drain(bus)
     rp, tol = got.rp, got.tolerance
     lo, hi = levels
-    cb = _from_reading(rise, rp, c_probe, lo, hi)
+    cb, alone = _from_reading(rise, rp, c_probe, lo, hi)
     # a larger pull-up charges slower: the same reading then means less capacitance
     cb_low, _ = capacitance_from_rise(rise * (1 - READING_TOLERANCE), rp * (1 + tol),
                                       0.0, lo=lo, hi=hi)
@@ -220,7 +230,81 @@ def compare_rise(design: Design, bus_id: str, rise: float, c_probe: float, *,
     return BenchComparison(bus.id, got.segment, got.signal, float(rise), float(c_probe),
                            (float(lo), float(hi)), float(rp), tol, float(cb), cb_low, cb_high,
                            model, parts, verdict, revisit, protocol=bus.protocol,
-                           notes=list(got.notes))
+                           notes=list(got.notes), rise_alone=float(alone))
+
+
+@value_class(frozen=True)
+class MeasurableLine:
+    """A line of a design a bench reading can be taken on (:func:`measurable_lines`).
+
+    Attributes
+    ----------
+    bus : str
+        The bus's id.
+    protocol : str
+        Its protocol (``i2c``, ``smbus``, ``gpio``).
+    segment : str or None
+        The segment, on an I2C or SMBus bus of more than one; None otherwise.
+    signal : str
+        ``sda`` or ``scl``, or the GPIO line's name.
+    """
+
+    bus: str
+    protocol: str
+    segment: str | None
+    signal: str
+
+    def place(self) -> str:
+        """The line as a person names it: ``reset, line reset``, ``i2c0, SDA``,
+        ``sense, segment sense-2, SDA``."""
+        if self.protocol == "gpio":
+            return f"{self.bus}, line {self.signal}"
+        return self.bus + (f", segment {self.segment}" if self.segment else "") + \
+            f", {self.signal.upper()}"
+
+    def arguments(self) -> dict:
+        """The keyword arguments of :func:`compare_rise` that name this line."""
+        return {"signal": self.signal, "segment": self.segment}
+
+
+def measurable_lines(design: Design) -> tuple[list[MeasurableLine], list[tuple]]:
+    """The lines of a design :func:`compare_rise` takes a reading on, and the others.
+
+    Every I2C or SMBus bus's SDA and SCL (per segment where it has several), and every
+    GPIO line an open-drain pin drives that has a pull-up; not a line only push-pull
+    pins drive, one without a pull-up, nor an SPI bus.
+
+    Returns
+    -------
+    offered : list of MeasurableLine
+        In design order.
+    refused : list of (str, str or None, PinlibError)
+        Each bus (with its line's name, or None for the whole bus) not offered, with the
+        error :func:`compare_rise` would raise for it.
+    """
+    offered: list[MeasurableLine] = []
+    refused: list[tuple] = []
+    for bus in design.buses:
+        if is_open_drain(bus.protocol):
+            several = len(bus.segments) > 1
+            offered += [MeasurableLine(bus.id, bus.protocol, seg.id if several else None, sig)
+                        for seg in bus.segments for sig in SIGNALS]
+        elif bus.protocol == "gpio":
+            try:
+                inputs = {x.signal: x for x in line_inputs(bus, design)}
+            except PinlibError as err:
+                refused.append((bus.id, None, err))
+                continue
+            for name in bus.lines:
+                try:
+                    _gpio_open_drain(bus, design, name, None, inputs)
+                except PinlibError as err:
+                    refused.append((bus.id, name, err))
+                else:
+                    offered.append(MeasurableLine(bus.id, bus.protocol, None, name))
+        else:
+            refused.append((bus.id, None, _not_open_drain(bus)))
+    return offered, refused
 
 
 @value_class(frozen=True)
@@ -254,9 +338,12 @@ def _open_drain_line(bus: Bus, design: Design, signal: str, segment: str | None)
                  {k: float(v) for k, v in line.cb_parts.items()})
 
 
-def _gpio_line(bus: Bus, design: Design, signal: str | None, segment: str | None) -> _Line:
-    """A GPIO line an open-drain pin drives, as the push-pull engine analyses it: the
-    pull-up its open-drain drivers pull against and its figure ``load_capacitance``."""
+def _gpio_open_drain(bus: Bus, design: Design, signal: str | None, segment: str | None,
+                     inputs: dict | None = None) -> tuple:
+    """A GPIO bus's line a bench reading can be taken on: its inputs to the push-pull
+    engine, its open-drain and its push-pull drivers, and the pull-up (nominal) the
+    open-drain ones pull against.  ``inputs``, the bus's line inputs by name, when
+    already built.  An InputError says why the line cannot be measured."""
     names = list(bus.lines)
     listed = ", ".join(names) or "none (the bus routes no line)"
     if segment is not None:
@@ -269,7 +356,8 @@ def _gpio_line(bus: Bus, design: Design, signal: str | None, segment: str | None
         signal = names[0]
     if signal not in bus.lines:
         raise InputError(M.BENCH_NO_SUCH_LINE, field="--line", value=signal, expected=listed)
-    inputs = {x.signal: x for x in line_inputs(bus, design)}
+    if inputs is None:
+        inputs = {x.signal: x for x in line_inputs(bus, design)}
     li = inputs[signal]
     od = [d for d in li.drivers if d.pin.drive == "open-drain"]
     pp = [d for d in li.drivers if d.pin.drive != "open-drain"]
@@ -289,6 +377,14 @@ def _gpio_line(bus: Bus, design: Design, signal: str | None, segment: str | None
                          expected=f"a pull-up on the line (lines.{signal}.pullup), or a part "
                                   "carrying one on its pin",
                          hint=f"{_who(od)} drive{'s' if len(od) == 1 else ''} it open-drain")
+    return li, od, pp, rp
+
+
+def _gpio_line(bus: Bus, design: Design, signal: str | None, segment: str | None) -> _Line:
+    """A GPIO line an open-drain pin drives, as the push-pull engine analyses it: the
+    pull-up its open-drain drivers pull against and its figure ``load_capacitance``."""
+    li, od, pp, rp = _gpio_open_drain(bus, design, signal, segment)
+    signal = li.signal
     tol = PULLUP_TOLERANCE if li.line.pullup_tolerance is None else li.line.pullup_tolerance
     a = li.analyse()
     fig = a.result.figures.get("load_capacitance")
@@ -312,16 +408,25 @@ def _gpio_line(bus: Bus, design: Design, signal: str | None, segment: str | None
     return _Line(None, signal, float(rp), float(tol), total, parts, notes)
 
 
+def _not_open_drain(bus: Bus) -> InputError:
+    """The refusal of a bus of no open-drain line (SPI)."""
+    return InputError(M.NOT_OPEN_DRAIN_BUS, field="--bus", value=f"{bus.id} ({bus.protocol})",
+                      expected="an i2c or smbus bus, or a gpio bus's line an open-drain "
+                               "pin drives")
+
+
 def _who(endpoints) -> str:
     """The pins named as the engine labels them (``U2.reset``)."""
     return ", ".join(e.label for e in endpoints)
 
 
-def _from_reading(rise: float, rp: float, c_probe: float, lo: float, hi: float) -> float:
-    """The bus capacitance of a reading; an error names the option it comes from, with
-    its value in units (the physics names its own parameters)."""
+def _from_reading(rise: float, rp: float, c_probe: float, lo: float,
+                  hi: float) -> tuple[float, float]:
+    """The bus capacitance of a reading and the rise without the probe; an error names
+    the option it comes from, with its value in units (the physics names its own
+    parameters)."""
     try:
-        cb, _ = capacitance_from_rise(rise, rp, c_probe, lo=lo, hi=hi)
+        cb, alone = capacitance_from_rise(rise, rp, c_probe, lo=lo, hi=hi)
     except InputError as err:
         option, unit = _OPTIONS.get(err.field, (err.field, ""))
         if option == "--levels":
@@ -336,7 +441,7 @@ def _from_reading(rise: float, rp: float, c_probe: float, lo: float, hi: float) 
                             f"{format_si(rp, 'Ω')}: {alone}")
         raise InputError(err.problem, field=option, value=value, expected=expected,
                          hint=err.hint) from None
-    return cb
+    return cb, alone
 
 
 def _probe_rise(rp: float, c_probe: float, lo: float, hi: float) -> float:

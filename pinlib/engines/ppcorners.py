@@ -19,7 +19,8 @@ the engine makes of it falls apart along them:
   same numbers to the last bit), and the bus figures ``max_clock`` and the lowest timing
   margins likewise (:func:`~pinlib.engines.spi.analysis.term_clocks`,
   :func:`~pinlib.engines.spi.evaluate.lowest_margins`);
-* the parts' ``f-max`` checks depend on no toleranced value: the nominal board's.
+* the parts' ``f-max`` and ``spi-mode`` checks depend on no toleranced value: the
+  nominal board's.
 
 A bus whose nominal result is not laid out that way (a check the budget did not make, a
 peripheral whose flights differ in kind between boards) is left to the engine board by
@@ -47,7 +48,7 @@ from pinlib.engines.ppworst import BoardRows, rank_margin
 from pinlib.engines.pushline import Flight
 from pinlib.engines.spi import budget_terms
 from pinlib.engines.spi.analysis import SpiAnalysis, line_flights, line_setup, term_clocks
-from pinlib.engines.spi.budget import Term
+from pinlib.engines.spi.budget import EDGE_FIELDS, Term
 from pinlib.engines.spi.evaluate import MARGIN_FIGURES, lowest_margins, term_check
 from pinlib.model.design import Bus, Design
 from pinlib.model.result import BusResult, LineResult
@@ -86,19 +87,25 @@ def corner_rows(bus: Bus, design: Design, nominal: BusResult, *,
         ``check_names(bus, nominal)``, or None where the boards' results are not laid
         out as the nominal's.  None for a bus it does not serve (not SPI, or a nominal
         result whose bus checks are not the budget's terms, the parts' ``f-max`` and
-        the devices' ``supply-range``, in that order).
+        ``spi-mode`` and the devices' ``supply-range``, in that order).
     """
     sa = nominal.workings
     if bus.protocol != "spi" or not isinstance(sa, SpiAnalysis) or not bus.clock:
         return None
     n_line = sum(len(ln.checks) for ln in nominal.lines)
     own = [c.id for c in nominal.checks]
-    n_terms, n_f = len(sa.terms), len(sa.f_limits)
+    n_terms, n_f = len(sa.terms), len(_fixed_ids(sa))
     if (own[:n_terms] != [t.id for t in sa.terms]
-            or own[n_terms:n_terms + n_f] != ["f-max"] * n_f
+            or own[n_terms:n_terms + n_f] != _fixed_ids(sa)
             or any(i != "supply-range" for i in own[n_terms + n_f:])):
         return None
     return _Corners(bus, design, nominal, sa, n_line, floor).rows
+
+
+def _fixed_ids(sa: SpiAnalysis) -> list[str]:
+    """The ids of the bus checks no tolerance moves, in the engine's order: each part's
+    ``f-max``, then each ``spi-mode``."""
+    return ["f-max"] * len(sa.f_limits) + ["spi-mode"] * len(sa.mode_limits)
 
 
 class _Corners:
@@ -111,10 +118,11 @@ class _Corners:
         self.specs = parameter_specs(bus)
         self.chosen = chosen_resistors(nominal)
         self.index = {nm["name"]: j for j, nm in enumerate(check_names(bus, nominal))}
+        n_fixed = len(_fixed_ids(sa))
         self.fixed = {n_line + len(sa.terms) + q: nominal.checks[len(sa.terms) + q]
-                      for q in range(len(sa.f_limits))}
+                      for q in range(n_fixed)}
         self.warn = design.warn_margin
-        self.n_supply = len(nominal.checks) - len(sa.terms) - len(sa.f_limits)
+        self.n_supply = len(nominal.checks) - len(sa.terms) - n_fixed
 
     def _variants(self, u: np.ndarray, sig: str | None):
         """The distinct factors of the boards on one line (``sig``; None: the factors
@@ -212,7 +220,7 @@ class _Corners:
                 got = flights.get(sig)
                 if got is None:
                     return getattr(p, sig)
-                if sig == "sclk":
+                if sig in EDGE_FIELDS:
                     return {e: Flight(*got[(i, e)]) for e in ("rise", "fall")}
                 return Flight(*got[(i, None)]) if (i, None) in got else None
             out.append(replace(p, **{sig: flight(sig) for sig in _FIELDS}))

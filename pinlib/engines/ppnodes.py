@@ -17,6 +17,7 @@ import numpy as np
 from pinlib.engines import ppvariant as ppv
 from pinlib.engines import pushpull as pp
 from pinlib.engines.ppvariant import number_or_nan as _num
+from pinlib.engines.spi.budget import EDGE_FIELDS
 from pinlib.model.design import Bus, Design
 from pinlib.model.result import STATUS_CODES, status_codes
 
@@ -38,7 +39,9 @@ def evaluate(bus: Bus, design: Design):
     return pp.evaluate_board(bus, design), None
 
 
-FIELDS = ("copi", "cs", "cipo")
+#: The peripherals' flights of one value over both edges (the others, EDGE_FIELDS, per
+#: edge direction).
+FIELDS = ("copi", "cipo")
 
 
 def record(bus: Bus, res, sa) -> tuple[dict, list]:
@@ -55,11 +58,13 @@ def record(bus: Bus, res, sa) -> tuple[dict, list]:
                  ("check", nm["name"], "status", STATUS_CODES[c.status])])
     if sa is not None:
         for i, p in enumerate(sa.peripherals):
-            for e in ("rise", "fall"):
-                f = p.sclk[e]
-                per_line.setdefault("sclk", []).extend(
-                    [("flight", i, f"sclk-{e}", "early", f.early),
-                     ("flight", i, f"sclk-{e}", "late", f.late)])
+            for sig in EDGE_FIELDS:
+                edges = getattr(p, sig)
+                for e in ("rise", "fall") if edges is not None else ():
+                    f = edges[e]
+                    per_line.setdefault(sig, []).extend(
+                        [("flight", i, f"{sig}-{e}", "early", f.early),
+                         ("flight", i, f"{sig}-{e}", "late", f.late)])
             for field in FIELDS:
                 f = getattr(p, field)
                 if f is not None:
@@ -149,9 +154,10 @@ def flight_slots(sa, labels) -> list:
     out = []
     for i, _p in enumerate(sa.peripherals):
         slots = {}
-        if "sclk" in labels and ("flight", i, "sclk-rise", "early") in labels["sclk"]:
-            slots["sclk"] = {e: labels["sclk"].index(("flight", i, f"sclk-{e}", "early"))
-                             for e in ("rise", "fall")}
+        for sig in EDGE_FIELDS:
+            if sig in labels and ("flight", i, f"{sig}-rise", "early") in labels[sig]:
+                slots[sig] = {e: labels[sig].index(("flight", i, f"{sig}-{e}", "early"))
+                              for e in ("rise", "fall")}
         for field in FIELDS:
             if field in labels and ("flight", i, field, "early") in labels[field]:
                 slots[field] = (field, labels[field].index(("flight", i, field, "early")))

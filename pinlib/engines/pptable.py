@@ -67,6 +67,7 @@ from pinlib.engines.opendrain.rules import supply_margin
 from pinlib.engines.ppvariant import line_of_key
 from pinlib.engines.ppvariant import number_or_nan as _num
 from pinlib.engines.pushline import Flight
+from pinlib.engines.spi.budget import EDGE_FIELDS
 from pinlib.engines.tablegrid import interpolate, rough_spans, stencil
 from pinlib.model.design import Bus, Design
 from pinlib.model.result import STATUS_CODES, status_codes
@@ -331,10 +332,10 @@ class LineTable:
         for p, slots in zip(sa.peripherals, self._flight_slots, strict=True):
             def flight(field, p=p, slots=slots):
                 if field not in slots:
-                    return getattr(p, field) if field != "sclk" else p.sclk
-                if field == "sclk":
-                    return {e: Flight(got["sclk"][:, slots["sclk"][e]],
-                                      got["sclk"][:, slots["sclk"][e] + 1])
+                    return getattr(p, field)
+                if field in EDGE_FIELDS:
+                    return {e: Flight(got[field][:, slots[field][e]],
+                                      got[field][:, slots[field][e] + 1])
                             for e in ("rise", "fall")}
                 sig, base = slots[field]
                 return Flight(got[sig][:, base], got[sig][:, base + 1])

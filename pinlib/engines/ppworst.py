@@ -113,7 +113,7 @@ def method_text(k: int, limit: int = EXHAUSTIVE_LIMIT) -> str:
     if k == 0:
         return "no toleranced parameter"
     if k <= limit:
-        return f"all {2 ** k} corners of {k} parameters"
+        return f"all {2 ** k} corners of {k} parameter{'s' if k > 1 else ''}"
     return (f"{k} parameters: each alone at both ends, then for each check every parameter "
             "at the end that lowered its margin")
 

@@ -21,7 +21,7 @@ from pinlib.core.quantity import UNITS, Threshold
 from pinlib.core.records import Convert, Record
 from pinlib.core.valueclass import value_class
 from pinlib.library import schema
-from pinlib.library.values import Sourced
+from pinlib.library.values import Sourced, StatedList
 
 __all__ = [
     "ValueKind",
@@ -244,7 +244,9 @@ def resolve_path(text: str) -> tuple[tuple[str, ...], ValueKind]:
             model, i = sub, i + 1
             continue
         what = "a list (edit the file by hand)" if sequence_of(info) else (
-            "a table" if sub is not None else "not a value with a unit")
+            "a table" if sub is not None else
+            f"a list (edit the file by hand: {key} = {{ value = [...], source = \"...\" }})"
+            if StatedList in _flat_args(info.annotation) else "not a value with a unit")
         raise LibraryError(M.FIELD_TAKES_NO_VALUE.format(what=what), field=".".join(path),
                            value=text, expected="a field such as c_in, v_il, timing.f_max")
     raise LibraryError(M.PATH_STOPS_BEFORE_FIELD, field=".".join(path), value=text,

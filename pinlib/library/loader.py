@@ -26,7 +26,7 @@ from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_index, line_of, load
 from pinlib.core.valueclass import value_class
 from pinlib.library.schema import FORMAT, Part
-from pinlib.library.values import Sourced
+from pinlib.library.values import Sourced, StatedList
 from pinlib.library.walk import (  # noqa: F401 - the walk's names, as before
     MAX_FOLDER_DEPTH,
     MAX_FOLDER_ENTRIES,
@@ -280,7 +280,7 @@ def _with_origins(part: Part, origin: dict, own: str, stamps: dict | None = None
     def walk(obj, path):
         if obj is None or isinstance(obj, (str, bool, int, float)):
             return obj
-        if isinstance(obj, Sourced):
+        if isinstance(obj, (Sourced, StatedList)):
             pid = _origin_of(origin, path) or own
             file, prov = stamps.get(pid, (None, None))
             return obj.with_origin(pid, file=file, provenance=prov)

@@ -30,6 +30,7 @@ t_pd             propagation delay through a bridging part, max           s
 t_of_min         output fall time 0.7 to 0.3 VDD at the pin, min          s
 t_of_max         output fall time 0.7 to 0.3 VDD at the pin, max          s
 t_transition_max an input's rise/fall time (10-90 %), max                 s
+spi_modes        the SPI modes (0 to 3, CPOL/CPHA) the part works in      1
 ================ ======================================================== =====
 """
 
@@ -41,8 +42,23 @@ from typing import Annotated, Literal
 from pinlib.core import messages as M
 from pinlib.core.protocols import PIN_FUNCTIONS
 from pinlib.core.quantity import format_si
-from pinlib.core.records import Convert, Involving, Record, Rule, after, check, field
-from pinlib.library.values import Sourced, sourced_parser, threshold_parser
+from pinlib.core.records import (
+    Convert,
+    Involving,
+    Record,
+    Rule,
+    WrittenAs,
+    after,
+    check,
+    field,
+)
+from pinlib.library.values import (
+    Sourced,
+    StatedList,
+    modes_parser,
+    sourced_parser,
+    threshold_parser,
+)
 
 __all__ = [
     "FORMAT",
@@ -86,6 +102,21 @@ Frequency = _q("Hz", 0.0, 100e9)
 CapPerLength = _q("F/m", 0.0, 1e-6)
 DelayPerLength = _q("s/m", 1e-9, 1e-6)
 Level = Annotated[Sourced, Convert(threshold_parser())]
+
+
+def _modes_written() -> dict:
+    """What a part file writes for ``spi_modes``, for the JSON Schema."""
+    from pinlib.library.values import BASES
+
+    text = "the SPI modes (CPOL·2 + CPHA) the part works in, e.g. [0, 3]"
+    array = {"type": "array", "items": {"type": "integer", "minimum": 0, "maximum": 3},
+             "minItems": 1, "maxItems": 4, "uniqueItems": True, "description": text}
+    table = {"type": "object", "description": f"{text}, with where it came from",
+             "properties": {"value": dict(array),
+                            "basis": {"enum": list(BASES[:-1])},
+                            "source": {"type": "string"}},
+             "required": ["value"], "additionalProperties": False}
+    return {"anyOf": [array, table], "description": text}
 
 
 class Edge(Record):
@@ -192,6 +223,10 @@ class Timing(Record):
     t_cs_hold: Time | None = None
     # a peripheral that drives its first CIPO bit when CS asserts (CPHA 0): CS to valid
     t_cs_valid: Time | None = None
+    # the SPI modes (CPOL/CPHA, 0 to 3) the datasheet says the part works in; its source
+    # is the provenance of the file that states it
+    spi_modes: Annotated[StatedList, Convert(modes_parser), WrittenAs(_modes_written)] \
+        | None = None
     test_load: Capacitance | None = None
     # bridging parts, isolators, buffers
     t_pd: Time | None = None

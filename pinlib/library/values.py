@@ -17,7 +17,8 @@ from pinlib.core.errors import UnitError
 from pinlib.core.quantity import Threshold, format_si, parse, parse_threshold, range_text
 from pinlib.core.valueclass import value_class
 
-__all__ = ["BASES", "Sourced", "sourced_parser", "threshold_parser"]
+__all__ = ["BASES", "Sourced", "StatedList", "sourced_parser", "threshold_parser",
+           "modes_parser"]
 
 #: How a value was obtained ("ibis": read or derived by arithmetic from an IBIS file;
 #: "derived" is set by pinlib itself and stays last).
@@ -128,6 +129,75 @@ class Sourced:
         if self.typ is not None:
             out["typ"] = str(self.typ) if isinstance(self.typ, Threshold) else self.typ
         return out
+
+
+class StatedList(tuple):
+    """A list a part states (its SPI modes) that keeps, as :class:`Sourced` does, its
+    own basis and source where the file gives them (``{ value = [0, 3], source = ...
+    }``), else those of the file that set it; and the part whose file that is (a part
+    that extends a class and does not restate the list cites the class's file).
+
+    Attributes
+    ----------
+    origin : str or None
+        The part id whose file set the list.
+    basis, source : str or None
+        Its own, or that file's provenance.
+    """
+
+    origin: str | None = None
+    basis: str | None = None
+    source: str | None = None
+
+    def with_origin(self, origin: str, *, file: str | None = None,
+                    provenance: dict | None = None) -> StatedList:
+        """The list stamped with the part that set it and its file's provenance."""
+        if self.origin:
+            return self
+        out = StatedList(self)
+        out.origin = origin
+        prov = provenance or {}
+        if self.basis is None and self.source is None:
+            out.basis = prov.get("basis") or "generic"
+            out.source = prov.get("source") or None
+        else:  # its own; a basis it does not state is its file's, as a Sourced's
+            out.basis = self.basis or prov.get("basis") or "generic"
+            out.source = self.source
+        return out
+
+    def cited(self, field: str) -> str:
+        """``'nor-flash-spi spi_modes: typical of the class'``: the part that set it, the
+        field, and its file's source (or basis), as a timing value's source reads."""
+        said = self.source or self.basis
+        return f"{self.origin} {field}" + (f": {said}" if said else "")
+
+
+def modes_parser(raw, name=None):
+    """A record converter: a list of SPI modes (whole numbers 0 to 3, each once, at least
+    one), plain or as ``{ value = [...], basis = ..., source = ... }`` ->
+    :class:`StatedList`."""
+    if isinstance(raw, StatedList):
+        return raw
+    field = _field_name(name)
+    basis = source = None
+    if isinstance(raw, dict):
+        if "typ" in raw:  # a typical list of modes means nothing
+            raise UnitError(M.VALUE_TABLE_UNKNOWN_KEY.format(key="typ"), field=field,
+                            expected="only value, basis, source")
+        raw, basis, source, _ = _split_table(raw, field)
+    if not isinstance(raw, (list, tuple)) or not raw:
+        raise UnitError(M.SPI_MODES_BAD_LIST, field=field, value=raw,
+                        expected="e.g. [0, 3]")
+    for i, m in enumerate(raw):
+        if isinstance(m, bool) or not isinstance(m, int) or not 0 <= m <= 3:
+            raise UnitError(M.SPI_MODE_NOT_0_TO_3, field=f"{field}[{i}]" if field else None,
+                            value=m, expected="0, 1, 2 or 3")
+    if len(set(raw)) != len(raw):
+        raise UnitError(M.SPI_MODES_BAD_LIST, field=field, value=list(raw),
+                        expected="e.g. [0, 3]")
+    out = StatedList(sorted(raw))
+    out.basis, out.source = basis, source
+    return out
 
 
 def _split_table(raw, field):

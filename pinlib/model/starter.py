@@ -78,6 +78,22 @@ def _serves(part, proto) -> list[str]:
     return [sig for sig, fn in proto.signals if fn in offered]
 
 
+def _spi_mode_line(parts) -> str:
+    """``spi_mode = N``: the lowest mode every part that states its modes works in (0
+    when none states any), with a comment saying whose modes chose it or that they share
+    none."""
+    stated = [(p.id, tuple(p.timing.spi_modes)) for p in parts
+              if p.timing.spi_modes is not None]
+    common = sorted(set.intersection({0, 1, 2, 3}, *(set(m) for _, m in stated)))
+    if not stated:
+        return _noted("spi_mode = 0", "CPOL/CPHA of the peripherals")
+    if not common:
+        return _noted("spi_mode = 0", "the parts share no SPI mode: see pinlib check")
+    allowed = ", ".join(map(str, common[:-1])) + " or " if len(common) > 1 else ""
+    return _noted(f"spi_mode = {common[0]}",
+                  f"the parts' SPI modes allow {allowed}{common[-1]}")
+
+
 def _drives_clock(part, proto) -> bool:
     clock = "scl" if proto.open_drain else "sclk"
     found = part.pin_for(protocols.SIGNAL_FUNCTION[clock])
@@ -190,7 +206,7 @@ def _bus(group, members, bridges=()) -> tuple[list[str], bool]:
             out += ["", f"# Segment: {where}.", "[[bus.segment]]",
                     f'id = "{name}-{_rail_name(seg)}"'] + seg
         return out, True
-    out += [_noted("spi_mode = 0", "CPOL/CPHA of the peripherals"),
+    out += [_spi_mode_line([p for _, p in members]),
             _noted('clock = "1 MHz"', "placeholder: the clock you intend"),
             _noted(f'supply = "{supply}"', "the rail of the I/O: check it"),
             'supply_tolerance = "5 %"']

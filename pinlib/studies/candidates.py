@@ -99,12 +99,12 @@ def bus_figures(protocol: str) -> tuple:
 FIXED_CHECKS = ("scl-frequency", "bridge-gate-drive", "bridge-offset-facing")
 
 #: Checks of one device's own rating against the bus (its supply range, its f_max, its
-#: highest input voltage, the slowest device's speed): the check names that device as
+#: highest input voltage, the slowest device's speed, its SPI modes): the check names that device as
 #: its subject, and it counts for a candidate's worst margin only when that device is
 #: the candidate.  Another
 #: device's rating is the same for every candidate (at the demo's display position
 #: every candidate's worst was the controller's supply range, +8.3 %).
-OWN_CHECKS = ("supply-range", "f-max", "device-speed", "input-voltage")
+OWN_CHECKS = ("supply-range", "f-max", "device-speed", "input-voltage", "spi-mode")
 
 _RANK = {"pass": 0, "warn": 1, "fail": 2, "error": 3}
 

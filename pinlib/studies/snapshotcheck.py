@@ -4,10 +4,11 @@ A snapshot (``<design>.result.json``) is a file anyone can edit, damage or repla
 :func:`check_snapshot` walks the parts of it that :func:`pinlib.studies.compare.compare`
 reads -- the buses, their segments and lines, the couplings, each group's checks and
 figures, the parts and their values, the library -- and raises an :class:`InputError`
-naming the file and the first field that is not of the kind pinlib writes there (``buses[0]``: an
-object; ``parts``: an object of objects; a value: a finite number, text, yes/no or
-null).  What it does not read is not looked at.  The walk is a loop over a fixed shape,
-so a deep or huge snapshot costs time linear in its size and no recursion.
+naming the file and the first field that is not of the kind pinlib writes there
+(``buses[0]``: an object; ``parts``: an object of objects; a value: a finite number,
+text, yes/no or null, or for a part's value a short list of whole numbers).  What it
+does not read is not looked at.  The walk is a loop over a fixed shape, so a deep or
+huge snapshot costs time linear in its size and no recursion.
 """
 
 from __future__ import annotations
@@ -20,6 +21,7 @@ from pinlib.core.errors import InputError
 __all__ = ["check_snapshot"]
 
 _SCALAR = "a number, text, yes/no or null"
+_SETTING = "a number, text, yes/no, null or a short list of numbers (SPI modes)"
 _TEXT = "text"
 _NUMBER = "a finite number"
 _OBJECT = "an object"
@@ -38,6 +40,12 @@ def _is_number(x) -> bool:
 
 def _is_text(x) -> bool:
     return isinstance(x, str)
+
+
+def _is_setting(x) -> bool:
+    """A part's value or setting: a scalar, or a list a part states (its SPI modes)."""
+    return _is_scalar(x) or (isinstance(x, list) and len(x) <= 16 and all(
+        isinstance(i, int) and not isinstance(i, bool) for i in x))
 
 
 def _or_none(test):
@@ -157,7 +165,7 @@ def _check_value(c: _Check, entry, where: str) -> None:
                 and entry.get("vdd") is None:
             c.fail(f"{where}.vdd", None, _NUMBER)
     else:
-        c.kind(entry, "value", where, _is_scalar, _SCALAR)
+        c.kind(entry, "value", where, _is_setting, _SETTING)
     c.kind(entry, "unit", where, _is_text, _TEXT)
     c.kind(entry, "text", where, _or_none(_is_text), _TEXT)
     for k in ("basis", "source", "origin"):

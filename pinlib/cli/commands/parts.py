@@ -315,10 +315,12 @@ def _run_list(args) -> int:
 def _walk(obj, path=()):
     """Yield (path, Sourced) for every value of a part, and (path, x) for plain fields."""
     from pinlib.core.records import Record
-    from pinlib.library.values import Sourced
+    from pinlib.library.values import Sourced, StatedList
 
     if isinstance(obj, Sourced):
         yield path, obj
+    elif isinstance(obj, StatedList):  # one setting, as the file writes it: [0, 3]
+        yield path, list(obj)
     elif isinstance(obj, Record):
         for name in type(obj).fields():
             value = getattr(obj, name)

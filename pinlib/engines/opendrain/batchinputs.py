@@ -103,7 +103,8 @@ class TimingData:
     """A part's timing and supply range as the engine reads them, over the batch."""
 
     f_max: Any | None      # [Hz]
-    t_vd_dat: Any          # [s]; the specification's when not stated
+    t_vd_dat: Any          # [s]; the specification's when not stated, or its t_vd_ack
+                           # where that is later (the acknowledge is a bit on SDA too)
     t_low: Any | None      # [s]
     t_high: Any | None     # [s]
     supply: tuple | None   # (min, max) [V] of the device's side
@@ -142,12 +143,24 @@ def _pin_data(pin, name: str, part: Part, dev: Device, lim: OpenDrainLimits,
     )
 
 
+def sda_valid_time(part: Part, lim: OpenDrainLimits) -> tuple[float, str]:
+    """When a part's SDA bit is valid after SCL falls, and which time that is: its data
+    valid time ``tVD;DAT`` (the specification's where it states none) or its acknowledge
+    valid time ``tVD;ACK`` where it states a later one: an acknowledge must be set up
+    before the ninth clock as a data bit before its clock. [s], [1]"""
+    t = part.timing
+    dat = float(t.t_vd_dat.value) if t.t_vd_dat is not None else lim.t_vd_dat
+    if t.t_vd_ack is not None and float(t.t_vd_ack.value) > dat:
+        return float(t.t_vd_ack.value), "tVD;ACK"
+    return dat, "tVD;DAT"
+
+
 def _timing_data(part: Part, dev: Device, lim: OpenDrainLimits) -> TimingData:
     t = part.timing
     sup = part.supply_for(dev.side)
     return TimingData(
         f_max=float(t.f_max.value) if t.f_max is not None else None,
-        t_vd_dat=float(t.t_vd_dat.value) if t.t_vd_dat is not None else lim.t_vd_dat,
+        t_vd_dat=sda_valid_time(part, lim)[0],
         t_low=float(t.t_low.value) if t.t_low is not None else None,
         t_high=float(t.t_high.value) if t.t_high is not None else None,
         supply=(float(sup.min.value), float(sup.max.value)) if sup is not None else None,

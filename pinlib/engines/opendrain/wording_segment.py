@@ -10,6 +10,7 @@ import math
 import numpy as np
 
 from pinlib.engines.opendrain.batchfigures import one
+from pinlib.engines.opendrain.batchinputs import sda_valid_time
 from pinlib.engines.opendrain.explain import _UNITS, segment_notes
 from pinlib.engines.opendrain.inputs import (
     SegmentInputs,
@@ -152,15 +153,17 @@ def _timing(w: Words, sb) -> None:
     w.take("setup-time")
     devices = ctx.devices
     for ref in bc.names:
-        if devices[ref].part.timing.t_vd_dat is None:
+        part = devices[ref].part
+        if part.timing.t_vd_dat is None and sda_valid_time(part, lim)[1] == "tVD;DAT":
             _default(seg_in, f"no t_vd_dat stated: taken at the specification's "
                              f"{_f(lim.t_vd_dat, 's')} ({lim.source_vd_dat})", ref)
     k, _ = row_corner(bc)
     t = bc.basis
     tvd, ref = one(t["t_vd"][k]), bc.names[k]
+    own, which = sda_valid_time(devices[ref].part, lim)
     grp.add(make(bc, f"{lim.source_timing}; tVD;DAT {lim.source_vd_dat}",
-                 f"SDA data setup tLOW {_f(t['t_low'], 's')} − tVD;DAT {_f(tvd, 's')} "
-                 f"({ref}{', incl. bridge delays' if tvd > lim.t_vd_dat else ''}) − tr "
+                 f"SDA data setup tLOW {_f(t['t_low'], 's')} − {which} {_f(tvd, 's')} "
+                 f"({ref}{', incl. bridge delays' if tvd > own else ''}) − tr "
                  f"{_f(one(t['t_r']), 's')} = {_f(bc.value[0], 's')} against tSU;DAT "
                  f"{_f(lim.t_su_dat, 's')}", subject=f"SDA {ref}"))
 

@@ -25,7 +25,7 @@ from pinlib.engines.pushline.rules import (
     _FIGURE_UNITS,
     _SETTLE_DELAYS,
     LINE_DELAY_RULE,
-    LONG_LINE_RULE,
+    LONG_LINE_SOURCE,
     LOSS_DELAY,
     LOSS_FRACTION,
     LUMPED_RULE,
@@ -459,9 +459,9 @@ def _electrical_length(a: LineAnalysis, notes: list) -> None:
     a.long, a.ratio = line_model(a.stretches, a.edge_alone,
                                  td=a.delay if a.net is not None else None)
     notes.append(f"one-way delay {_fmt(a.delay, 's')} is {a.ratio:.2f} of the driver's "
-                 f"{_fmt(a.edge_alone, 's')} edge into the pins alone: "
-                 f"{'electrically long' if a.long else 'electrically short'} "
-                 f"({LONG_LINE_RULE})")
+                 f"{_fmt(a.edge_alone, 's')} edge into the pins alone: electrically "
+                 + ("long, beyond" if a.long else "short, within")
+                 + f" 1/6 of the edge ({LONG_LINE_SOURCE})")
 
 
 def alone_inputs(a: LineAnalysis) -> list[tuple[float, float, float]]:

@@ -8,9 +8,9 @@ from pinlib.core.protocols import protocol
 #: A line is electrically long when its one-way delay exceeds this fraction of the
 #: driver's 10-90 % edge.
 LONG_LINE_FRACTION = 1.0 / 6.0
-LONG_LINE_RULE = (
-    "electrically long when the one-way delay exceeds 1/6 of the 10-90 % edge "
-    "(Johnson & Graham, High-Speed Digital Design, 1993; common practice)")
+LONG_LINE_SOURCE = "Johnson & Graham, High-Speed Digital Design, 1993; common practice"
+LONG_LINE_RULE = ("electrically long when the one-way delay exceeds 1/6 of the 10-90 % edge "
+                  f"({LONG_LINE_SOURCE})")
 
 #: A short line is lumped only when ``L / (R^2 C)`` is at most this (see LUMPED_RULE).
 LUMPED_INDUCTANCE_LIMIT = 0.01

@@ -44,6 +44,14 @@ With ``T`` the clock period, all flights at the peripheral P unless said otherwi
   ``lead`` is the controller's CS-to-first-edge time: its own ``t_cs_setup`` when the
   class records one, else half a clock period (a controller that asserts CS one half
   clock before the first edge; common practice, no source).
+* SCLK pulses at P (where it records ``t_high``, ``t_low``): ``T/2 + fall_early -
+  rise_late >= t_high(P)`` and ``T/2 + rise_early - fall_late >= t_low(P)``: the high
+  pulse runs from the rise's last crossing to the fall's first, the low one the other
+  way round.
+* CS hold at P: ``lag + cs_early(release) - sclk_late(last edge) >= t_cs_hold(P)``, where
+  ``lag`` is the controller's last-edge-to-CS-release time: its own ``t_cs_hold`` when
+  the class records one, else half a clock period (common practice, no source); the last
+  edge is the one that returns SCLK to its idle level.
 * First CIPO bit at the controller (CPHA 0, a peripheral that records ``t_cs_valid``,
   its CS-asserted-to-output-valid time): ``lead - (cs_late + t_cs_valid + cipo_late +
   2 t_pd) >= t_setup(controller)``: the first bit leaves when CS asserts and is sampled
@@ -115,6 +123,7 @@ from pinlib.engines.spi.margins import (  # noqa: F401
     max_clock,
 )
 from pinlib.engines.spi.modes import (  # noqa: F401
+    CS_LAG_SOURCE,
     CS_LEAD_SOURCE,
     MODE_SOURCE,
     SPI_MODES,
@@ -131,6 +140,7 @@ __all__ = [
     "SpiMode",
     "SPI_MODES",
     "MODE_SOURCE",
+    "CS_LAG_SOURCE",
     "CS_LEAD_SOURCE",
     "TIMING_REFERENCE",
     "spi_mode",

@@ -9,6 +9,7 @@ import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError
+from pinlib.core.labels import and_list
 from pinlib.core.valueclass import value_class
 from pinlib.engines.pushline import (
     EDGE_FRACTION,
@@ -19,9 +20,11 @@ from pinlib.engines.pushline import (
 )
 from pinlib.engines.spi.budget import ControllerTiming, PeripheralTiming, budget_terms
 from pinlib.engines.spi.margins import max_clock
+from pinlib.engines.spi.modecheck import mode_limits
 from pinlib.engines.spi.modes import (
     _CONTROLLER_DRIVES,
     _SPI_ORDER,
+    CS_LAG_SOURCE,
     CS_LEAD_SOURCE,
     SpiMode,
     spi_mode,
@@ -67,6 +70,7 @@ class SpiAnalysis:
     f_limits: list
     edge_terms: list
     notes: list
+    mode_limits: list = ()
 
     def max_clock(self) -> float:
         """Highest clock at which every timing margin and every part's ``f_max`` hold:
@@ -117,9 +121,9 @@ def term_clocks(terms: list) -> np.ndarray:
 
 
 def line_flights(sig: str, la, controller: Device, p: Device, bus: Bus):
-    """The flights one routed line gives a peripheral's timing budget: on ``sclk`` each
-    edge's (``{"rise": Flight, "fall": Flight}``) from the controller, on ``copi`` both
-    edges' and on ``cs`` its asserting edge's from the controller, on ``cipo`` both
+    """The flights one routed line gives a peripheral's timing budget: on ``sclk``
+    and ``cs`` each edge's (``{"rise": Flight, "fall": Flight}``; CS asserts on its fall)
+    from the controller, on ``copi`` both edges' from the controller, on ``cipo`` both
     edges' from the peripheral back to the controller; None where the peripheral (or,
     on ``cipo``, the controller) has no pin on the line or does not drive it. [s]"""
     cases = la.cases
@@ -130,9 +134,9 @@ def line_flights(sig: str, la, controller: Device, p: Device, bus: Bus):
     if e is None:
         return None
     case = cases[controller.ref]
-    if sig == "sclk":
+    if sig in ("sclk", "cs"):
         return {edge: case.flight(e, edge) for edge in ("rise", "fall")}
-    return case.flight_both(e) if sig == "copi" else case.flight(e, "fall")
+    return case.flight_both(e)
 
 
 def _far_side_notes(bus: Bus, controller: Device, peripherals: list,
@@ -266,8 +270,7 @@ def _shared_cs_note(controller: Device, pins: list) -> str:
     """What the one CS line of a bus with several peripherals stands for: the design
     gives one CS description, and pinlib solves it as one net loading every peripheral's
     CS pin; a board with a chip select per peripheral has lighter lines."""
-    refs = [p.ref for p in pins]
-    named = ", ".join(refs[:-1]) + f" and {refs[-1]}"
+    named = and_list(p.ref for p in pins)
     return (f"cs: solved as one net from {controller.ref} to the CS pins of {named} "
             "together; where each peripheral has a chip select of its own (the usual "
             "board), each of those lines carries one pin, so its edges are faster and "
@@ -294,17 +297,21 @@ def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
     lines, controller, peripherals, bridges, notes = _spi_lines(bus, design)
     ct = controller.part.timing
     c_sources = {n: _sourced_text(controller, n) for n in ("t_valid", "t_setup", "t_hold",
-                                                           "t_cs_setup", "f_max")}
+                                                           "t_cs_setup", "t_cs_hold",
+                                                           "f_max")}
     ctl = ControllerTiming(controller.ref, _timing_value(controller, "t_valid"),
                                _timing_value(controller, "t_setup"),
                                _timing_value(controller, "t_hold"),
                                _timing_value(controller, "t_cs_setup"),
-                               None if ct.f_max is None else float(ct.f_max.at()), c_sources)
+                               None if ct.f_max is None else float(ct.f_max.at()), c_sources,
+                               t_cs_lag=_timing_value(controller, "t_cs_hold"))
     for name in ("t_valid", "t_setup", "t_hold"):
         if getattr(ct, name) is None:
             notes.append(f"{controller.ref} ({controller.part_id}) records no {name}: taken as 0")
     if ct.t_cs_setup is None:
         notes.append(f"CS lead: {CS_LEAD_SOURCE}")
+    if ct.t_cs_hold is None and "cs" in lines:
+        notes.append(f"CS lag: {CS_LAG_SOURCE}")
     t_bridge = 0.0
     for b in bridges:
         if b.part.timing.t_pd is not None:
@@ -324,7 +331,7 @@ def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
         tv = _timing_value(p, "t_valid")
         if cipo is not None and tv is None:
             notes.append(f"{p.ref} ({p.part_id}) records no t_valid: CIPO setup not checked")
-        for name in ("t_setup", "t_hold", "t_cs_setup"):
+        for name in ("t_setup", "t_hold", "t_cs_setup") + (("t_cs_hold",) if cs else ()):
             if getattr(p.part.timing, name) is None:
                 notes.append(f"{p.ref} ({p.part_id}) records no {name}: taken as 0")
         t_cs_valid = _timing_value(p, "t_cs_valid")
@@ -336,14 +343,24 @@ def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
             _timing_value(p, "t_hold"), _timing_value(p, "t_cs_setup"),
             _timing_value(p, "f_max"),
             {n: _sourced_text(p, n) for n in ("t_valid", "t_setup", "t_hold", "t_cs_setup",
-                                              "t_cs_valid", "f_max")},
-            t_cs_valid=t_cs_valid))
+                                              "t_cs_hold", "t_cs_valid", "f_max", "t_high",
+                                              "t_low")},
+            t_cs_valid=t_cs_valid, t_cs_hold=_timing_value(p, "t_cs_hold"),
+            t_high=_timing_value(p, "t_high"), t_low=_timing_value(p, "t_low")))
+    unpulsed = [p.ref for p in periph_t if p.t_high is None and p.t_low is None]
+    if unpulsed:
+        notes.append(f"SCLK high and low pulses not checked at {and_list(unpulsed)}: no "
+                     "t_high or t_low recorded (the shortest pulse the input takes)")
     terms = budget_terms(mode, ctl, periph_t, t_bridge)
     f_limits = []
     for d in [controller] + peripherals + bridges:
         f = _timing_value(d, "f_max")
         if f is not None:
             f_limits.append((d.ref, f, _sourced_text(d, "f_max")))
+    m_limits, silent = mode_limits([controller] + peripherals + bridges)
+    if silent:
+        notes.append(f"SPI mode {mode.mode} not checked against {and_list(silent)}: "
+                     "no SPI modes stated (timing.spi_modes)")
     edge_terms = []
     if bus.clock:
         for sig, la in lines.items():
@@ -352,4 +369,4 @@ def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
             if edges:
                 edge_terms.append((sig, max(edges)))
     return SpiAnalysis(bus, mode, lines, ctl, periph_t, t_bridge, terms, f_limits,
-                       edge_terms, notes)
+                       edge_terms, notes, m_limits)

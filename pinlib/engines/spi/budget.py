@@ -14,6 +14,10 @@ from pinlib.engines.pushline import (
 )
 from pinlib.engines.spi.modes import SpiMode
 
+#: The flights a peripheral's budget keeps per edge direction (``{"rise", "fall"}``);
+#: the others are one flight over both edges.
+EDGE_FIELDS = ("sclk", "cs")
+
 
 @value_class(frozen=True)
 class PeripheralTiming:
@@ -26,12 +30,17 @@ class PeripheralTiming:
     sclk : dict
         Flight of each SCLK edge direction (``"rise"``, ``"fall"``) to the
         peripheral. [s]
-    copi, cs, cipo : Flight or None
-        COPI and CS flights to the peripheral over both edges (CS: its asserting edge),
-        CIPO flight from it back to the controller; None when the signal is not
-        routed or the part has no such pin. [s]
-    t_valid, t_setup, t_hold, t_cs_setup : float or None
+    copi, cipo : Flight or None
+        COPI flight to the peripheral over both edges, CIPO flight from it back to the
+        controller; None when the signal is not routed or the part has no such pin. [s]
+    cs : dict or None
+        Flight of each CS edge direction to the peripheral (``"fall"`` asserts it,
+        ``"rise"`` releases it: CS is active low); None as above. [s]
+    t_valid, t_setup, t_hold, t_cs_setup, t_cs_hold : float or None
         The peripheral's timing values. [s]
+    t_high, t_low : float or None
+        The shortest SCLK high and low pulse its input takes (minimum); None: not
+        checked. [s]
     t_cs_valid : float or None
         CS asserted to its first CIPO bit valid at its pin (CPHA 0), maximum. [s]
     f_max : float or None
@@ -43,7 +52,7 @@ class PeripheralTiming:
     ref: str
     sclk: dict
     copi: Flight | None = None
-    cs: Flight | None = None
+    cs: dict | None = None
     cipo: Flight | None = None
     t_valid: float | None = None
     t_setup: float | None = None
@@ -52,6 +61,9 @@ class PeripheralTiming:
     f_max: float | None = None
     sources: dict = field(default_factory=dict)
     t_cs_valid: float | None = None
+    t_cs_hold: float | None = None
+    t_high: float | None = None
+    t_low: float | None = None
 
 
 @value_class(frozen=True)
@@ -68,6 +80,8 @@ class ControllerTiming:
         CIPO setup and hold at its input (min). [s]
     t_cs_lead : float or None
         CS asserted to the first SCLK edge that it guarantees; None: half a period. [s]
+    t_cs_lag : float or None
+        The last SCLK edge to CS released that it guarantees; None: half a period. [s]
     f_max : float or None
         Its SPI clock limit. [Hz]
     sources : dict
@@ -81,6 +95,7 @@ class ControllerTiming:
     t_cs_lead: float | None = None
     f_max: float | None = None
     sources: dict = field(default_factory=dict)
+    t_cs_lag: float | None = None
 
 
 @value_class(frozen=True)
@@ -185,8 +200,9 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
     Returns
     -------
     list of Term
-        COPI setup and hold, CIPO setup and hold and CS setup for each peripheral that
-        has the signals, and in a CPHA 0 mode the first CIPO bit after CS where the
+        COPI setup and hold, CIPO setup and hold and CS setup and hold for each
+        peripheral that has the signals, its SCLK high and low pulses where it records
+        their minimum, and in a CPHA 0 mode the first CIPO bit after CS where the
         peripheral records ``t_cs_valid``; a term whose inputs are missing (no CIPO
         route, no ``t_valid``) is left out, and the caller says so.
     """
@@ -197,7 +213,21 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
         s_sample = p.sclk[mode.sample_edge]
         s_launch = p.sclk[mode.launch_edge]
         s_first = p.sclk[mode.first_edge]
+        # the transfer's last edge returns SCLK to its idle level
+        s_last = p.sclk["fall" if mode.idle == "low" else "rise"]
         src = p.sources
+        # the pulses at its input: from one edge's crossing of its far threshold to the
+        # next edge's of its near one (an SCLK whose rise and fall arrive apart narrows
+        # one of them)
+        for tid, name, start, end in (("sclk-high", "t_high", "rise", "fall"),
+                                      ("sclk-low", "t_low", "fall", "rise")):
+            need = getattr(p, name)
+            if need is not None:
+                terms.append(Term(
+                    tid, p.ref, 0.5, p.sclk[end].early - p.sclk[start].late, float(need),
+                    src.get(name, ""),
+                    {"half_period": "T/2", f"sclk_{start}_late": p.sclk[start].late,
+                     f"sclk_{end}_early": p.sclk[end].early, name: float(need)}))
         if p.copi is not None:
             tv = _or0(controller.t_valid)
             terms.append(Term(
@@ -233,20 +263,33 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
             else:
                 a, lead = 0.0, float(controller.t_cs_lead)
                 lead_text = lead
+            cs_on, cs_off = p.cs["fall"], p.cs["rise"]  # CS is active low
             terms.append(Term(
-                "cs-setup", p.ref, a, lead + s_first.early - p.cs.late,
+                "cs-setup", p.ref, a, lead + s_first.early - cs_on.late,
                 _or0(p.t_cs_setup), src.get("t_cs_setup", ""),
-                {"lead": lead_text, "sclk_early": s_first.early, "cs_late": p.cs.late,
+                {"lead": lead_text, "sclk_early": s_first.early, "cs_late": cs_on.late,
                  "t_cs_setup": _or0(p.t_cs_setup)}, p.t_cs_setup is not None))
+            if controller.t_cs_lag is None:
+                a_off, lag, lag_text = 0.5, 0.0, "T/2"
+            else:
+                a_off = 0.0
+                lag = lag_text = float(controller.t_cs_lag)
+            # the last edge leaves the controller lag before CS is released: the
+            # peripheral sees CS held from the last edge's late arrival to CS's early one
+            terms.append(Term(
+                "cs-hold", p.ref, a_off, lag + cs_off.early - s_last.late,
+                _or0(p.t_cs_hold), src.get("t_cs_hold", ""),
+                {"lag": lag_text, "sclk_late": s_last.late, "cs_early": cs_off.early,
+                 "t_cs_hold": _or0(p.t_cs_hold)}, p.t_cs_hold is not None))
             if mode.cpha == 0 and p.cipo is not None and p.t_cs_valid is not None:
                 # CPHA 0: the first bit is driven when CS asserts and sampled on the first
                 # edge, ``lead`` after CS leaves the controller; CS crosses each bridge
                 # out and CIPO back
                 terms.append(Term(
                     "cipo-first-bit", p.ref, a,
-                    lead - (p.cs.late + p.t_cs_valid + p.cipo.late + t_path),
+                    lead - (cs_on.late + p.t_cs_valid + p.cipo.late + t_path),
                     _or0(controller.t_setup), c_src.get("t_setup", ""),
-                    {"lead": lead_text, "cs_late": p.cs.late, "t_cs_valid": p.t_cs_valid,
+                    {"lead": lead_text, "cs_late": cs_on.late, "t_cs_valid": p.t_cs_valid,
                      "cipo_late": p.cipo.late, "bridges_round_trip": t_path,
                      "t_setup_controller": _or0(controller.t_setup)},
                     controller.t_setup is not None))

@@ -12,6 +12,7 @@ from pinlib.engines.pushline import (
 )
 from pinlib.engines.spi.analysis import SpiAnalysis, spi_analysis
 from pinlib.engines.spi.budget import Term
+from pinlib.engines.spi.modecheck import mode_checks
 from pinlib.engines.spi.modes import (
     MARGIN_NOT_COMPUTED,
     NO_CLOCK_LIMIT,
@@ -30,6 +31,12 @@ _TERM_TEXT = {
                   "available hold {avail} against the controller's t_hold {req}"),
     "cs-setup": ("CS setup at {ref}", "CS leads the first edge by {avail} against "
                                       "t_cs_setup {req}"),
+    "sclk-high": ("SCLK high pulse at {ref}", "the high pulse lasts {avail} at its input "
+                                              "against t_high {req}"),
+    "sclk-low": ("SCLK low pulse at {ref}", "the low pulse lasts {avail} at its input "
+                                            "against t_low {req}"),
+    "cs-hold": ("CS hold at {ref}", "CS stays asserted {avail} after the last edge against "
+                                    "t_cs_hold {req}"),
     "cipo-first-bit": ("first CIPO bit at the controller from {ref} (driven when CS "
                        "asserts)", "CS to the first sampling edge leaves {avail} against "
                                    "the controller's t_setup {req}"),
@@ -57,9 +64,11 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
     -------
     BusResult
         One line result per routed signal; checks ``copi-setup``, ``copi-hold``,
-        ``cipo-setup``, ``cipo-hold``, ``cs-setup``, ``cipo-first-bit`` (CPHA 0, a
-        peripheral that records ``t_cs_valid``; per peripheral) and ``f-max``
-        (per part); figures ``max_clock`` [Hz], ``cipo_setup_margin``,
+        ``sclk-high``, ``sclk-low`` (a peripheral that records ``t_high``, ``t_low``),
+        ``cipo-setup``, ``cipo-hold``, ``cs-setup``, ``cs-hold``, ``cipo-first-bit`` (CPHA 0, a
+        peripheral that records ``t_cs_valid``; per peripheral), ``f-max``
+        (per part) and ``spi-mode`` (per part that states its modes); figures
+        ``max_clock`` [Hz], ``cipo_setup_margin``,
         ``copi_setup_margin`` and ``copi_hold_margin`` (the worst over peripherals,
         available minus required time; None when not computed) [s].
     """
@@ -83,6 +92,8 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
         res.add(check_max("f-max", clock, f, "Hz", source,
                           f"clock {_fmt(clock, 'Hz')} against {ref}'s f_max {_fmt(f, 'Hz')}",
                           warn_margin=0.0, subject=ref))  # a rating: at it is inside
+    for chk in mode_checks(bus, sa.mode_limits):
+        res.add(chk)
     for la in sa.lines.values():
         res.lines.append(la.result)
     (f_top, by, _), (f_edge, edge_sig) = sa.clock_limits()[0], sa.edge_rule_clock()
@@ -173,4 +184,5 @@ def term_check(t: Term, clock: float, warn: float, mode: int) -> Check:
 
 #: The requirement of each term, by the key of its details, as the part records it.
 _REQUIRED_FIELDS = {"t_setup": "t_setup", "t_hold": "t_hold", "t_cs_setup": "t_cs_setup",
+                    "t_cs_hold": "t_cs_hold", "t_high": "t_high", "t_low": "t_low",
                     "t_setup_controller": "t_setup", "t_hold_controller": "t_hold"}

@@ -24,6 +24,8 @@ MODE_SOURCE = ("SPI clock modes (CPOL/CPHA) as described by controller and perip
                "datasheets (common practice; no single published standard)")
 CS_LEAD_SOURCE = ("controller asserts CS half a clock period before the first SCLK edge "
                   "when its class records no t_cs_setup (common practice, no source)")
+CS_LAG_SOURCE = ("controller releases CS half a clock period after the last SCLK edge "
+                 "when its class records no t_cs_hold (common practice, no source)")
 #: Why the figure ``max_clock`` has no number where nothing bounds the clock.
 NO_CLOCK_LIMIT = ("not limited by the parts' data (no timing requirement or f_max "
                   "bounds it; the notes say what the parts do not record)")

@@ -67,7 +67,7 @@ SERIES_COLOURS = {
     "output valid (t_valid)": BLUE,
     "data or CS flight": WINE,
     "SCLK flight": SKY_BLUE,
-    "required setup or hold": SAND,
+    "required setup, hold or width": SAND,
     "bridging parts": INDIGO,
     "output valid after CS (t_cs_valid)": OLIVE,
 }

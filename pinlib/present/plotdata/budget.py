@@ -73,26 +73,35 @@ BUDGET_COMPONENTS = {
     "copi-setup": (("t_valid_controller", 1.0, "output valid (t_valid)"),
                    ("copi_late", 1.0, "data or CS flight"),
                    ("sclk_early", -1.0, "SCLK flight"),
-                   ("t_setup", 1.0, "required setup or hold")),
+                   ("t_setup", 1.0, "required setup, hold or width")),
     "copi-hold": (("sclk_late", 1.0, "SCLK flight"),
                   ("copi_early", -1.0, "data or CS flight"),
-                  ("t_hold", 1.0, "required setup or hold")),
+                  ("t_hold", 1.0, "required setup, hold or width")),
     "cipo-setup": (("sclk_late", 1.0, "SCLK flight"),
                    ("t_valid", 1.0, "output valid (t_valid)"),
                    ("cipo_late", 1.0, "data or CS flight"),
                    ("bridges_round_trip", 1.0, "bridging parts"),
-                   ("t_setup_controller", 1.0, "required setup or hold")),
+                   ("t_setup_controller", 1.0, "required setup, hold or width")),
     "cipo-hold": (("sclk_early", -1.0, "SCLK flight"),
                   ("cipo_early", -1.0, "data or CS flight"),
-                  ("t_hold_controller", 1.0, "required setup or hold")),
+                  ("t_hold_controller", 1.0, "required setup, hold or width")),
     "cs-setup": (("cs_late", 1.0, "data or CS flight"),
                  ("sclk_early", -1.0, "SCLK flight"),
-                 ("t_cs_setup", 1.0, "required setup or hold")),
+                 ("t_cs_setup", 1.0, "required setup, hold or width")),
+    "sclk-high": (("sclk_rise_late", 1.0, "SCLK flight"),
+                  ("sclk_fall_early", -1.0, "SCLK flight"),
+                  ("t_high", 1.0, "required setup, hold or width")),
+    "sclk-low": (("sclk_fall_late", 1.0, "SCLK flight"),
+                 ("sclk_rise_early", -1.0, "SCLK flight"),
+                 ("t_low", 1.0, "required setup, hold or width")),
+    "cs-hold": (("sclk_late", 1.0, "SCLK flight"),
+                ("cs_early", -1.0, "data or CS flight"),
+                ("t_cs_hold", 1.0, "required setup, hold or width")),
     "cipo-first-bit": (("cs_late", 1.0, "data or CS flight"),
                        ("t_cs_valid", 1.0, "output valid after CS (t_cs_valid)"),
                        ("cipo_late", 1.0, "data or CS flight"),
                        ("bridges_round_trip", 1.0, "bridging parts"),
-                       ("t_setup_controller", 1.0, "required setup or hold")),
+                       ("t_setup_controller", 1.0, "required setup, hold or width")),
 }
 
 
@@ -121,7 +130,8 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
     Every requirement of :func:`pinlib.engines.spi.budget_terms` is
     ``a T + b >= required``.  The bar of a path stacks ``required - b`` split into
     its terms (:data:`BUDGET_COMPONENTS`) against the available ``a T`` (half a
-    period), or against the controller's stated CS lead for ``cs-setup``; the margin
+    period), or against the controller's stated CS lead for ``cs-setup`` (its CS lag
+    for ``cs-hold``); the margin
     is the engine's ``Term.margin(T)``.  The status is the engine's own check
     (:func:`pinlib.engines.spi.evaluate.term_check` at the design's warning margin).
     """
@@ -136,7 +146,8 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
         if not math.isfinite(float(term.available(period))):
             not_drawn[path] = NO_TIME.format(what=term.never_switching())
             continue
-        lead = term.parts.get("lead")
+        # a CS lead or lag the controller states is available time of its own
+        lead = term.parts.get("lead", term.parts.get("lag"))
         lead_s = float(lead) if isinstance(lead, (int, float)) else 0.0
         used = 0.0
         for key, sign, comp in BUDGET_COMPONENTS[term.id]:

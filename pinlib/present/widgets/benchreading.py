@@ -1,8 +1,14 @@
-"""The bench panel's answer of workbench 01 (:class:`BenchReading`)."""
+"""The bench panel's answer of workbench 01 (:class:`BenchReading`), and its text for a
+line of a saved design (:func:`comparison_html`: what ``pinlib measured`` says of it)."""
 
 from __future__ import annotations
 
+import re
+
+from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
+from pinlib.engines.bench import READING_TOLERANCE, BenchComparison, MeasurableLine
+from pinlib.present.widgets.markup import BLOCK, e
 
 
 @value_class(frozen=True)
@@ -25,6 +31,13 @@ class BenchReading:
         The rise time between the same levels without the probe. [s]
     cb_model : float
         The engine's bus capacitance of the line, for comparison. [F]
+    line : MeasurableLine or None
+        The line of a saved design the reading was taken on; None on SDA of the bus
+        built in the workbench.
+    comparison : BenchComparison or None
+        On a saved design's line, ``pinlib measured``'s answer
+        (:func:`pinlib.engines.bench.compare_rise`), which ``rp``, ``cb``, ``rise`` and
+        ``cb_model`` are taken from; None on the bus built in the workbench.
     """
 
     t_measured: float
@@ -34,3 +47,47 @@ class BenchReading:
     cb: float
     rise: float
     cb_model: float
+    line: MeasurableLine | None = None
+    comparison: BenchComparison | None = None
+
+
+#: The space between a number and its unit ("23 pF", "10 kΩ", "10 %"), which the panel's
+#: text keeps unbroken (a no-break space), as the command's wrapping does.
+_NUMBER_UNIT = re.compile(r"(\d) (?=(?:[afpnµmkMGT]?(?:F|Ω|s|V)|%)(?![A-Za-z]))")
+
+
+def _held(text: str) -> str:
+    return _NUMBER_UNIT.sub("\\1\u00a0", text)
+
+
+def _percent(fraction: float) -> str:
+    return f"{fraction * 100:g} %"
+
+
+def comparison_html(got: BenchComparison) -> str:
+    """``pinlib measured``'s answer on a saved design's line, as the bench panel shows
+    it: the reading's Cb and its range, the model's Cb and its contributions, the rise
+    without the probe, the verdict and what to revisit (the command's own sentences)."""
+    f = format_si
+    lo, hi = got.levels
+    parts = ", ".join(f"{k} {f(v, 'F') if v else '0 pF'}" for k, v in got.contributions.items())
+    place = got.place()
+    text = (
+        f"{e(place[0].upper() + place[1:])}, with Rp = {e(f(got.rp, 'Ω'))} "
+        f"(±{e(_percent(got.rp_tolerance))}): bus capacitance without the probe "
+        f"<b>{e(f(got.cb, 'F'))}</b> ({e(f(got.cb_low, 'F'))} to {e(f(got.cb_high, 'F'))} "
+        f"over the pull-up's tolerance and a ±{e(_percent(READING_TOLERANCE))} reading, "
+        f"common practice); the model's Cb <b>{e(f(got.cb_model, 'F'))}</b> ({e(parts)})")
+    if got.rise_alone is not None:
+        text += (f"; rise time without the probe <b>{e(f(got.rise_alone, 's'))}</b> "
+                 f"({lo * 100:.0f}–{hi * 100:.0f} %, as measured)")
+    out = f'<div style="{BLOCK};font-size:12px">{_held(text)}.</div>'
+    out += "".join(f'<div style="{BLOCK};font-size:12px">Note: {_held(e(n))}</div>'
+                   for n in got.notes)
+    verdict = got.verdict_text()
+    out += (f'<div style="{BLOCK};font-size:12px;margin-top:2px">'
+            f"<b>{e(verdict[0].upper() + verdict[1:])}</b></div>")
+    if got.revisit:
+        out += (f'<ul style="{BLOCK};font-size:12px;margin:2px 0;padding-left:18px">'
+                + "".join(f"<li>{_held(e(r))}</li>" for r in got.revisit) + "</ul>")
+    return out

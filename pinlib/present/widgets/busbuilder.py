@@ -20,7 +20,7 @@ from pinlib.library import load_library
 from pinlib.library.loader import Library
 from pinlib.model.design import MODES, design_from_text
 from pinlib.present import charts, plotdata
-from pinlib.present.widgets.benchreading import BenchReading
+from pinlib.present.widgets.benchreading import BenchReading, comparison_html
 from pinlib.present.widgets.choices import choice_line, with_button_below
 from pinlib.present.widgets.common import (
     ChartView,
@@ -34,6 +34,7 @@ from pinlib.present.widgets.common import (
     block_layout,
     button_layout,
     field_layout,
+    find_file,
     heading,
     note_widget,
     set_options,
@@ -66,6 +67,10 @@ from pinlib.present.widgets.markup import (
 )
 from pinlib.present.widgets.partfit import unfit_label, unfit_on_bus, unfit_sentence
 
+#: The bench panel's Line offered first, and the key of its choice: SDA of the bus the
+#: controls build (a saved design's lines follow it once one is loaded).
+BUILT_LINE = ("SDA of the bus built here", "")
+
 #: The pin functions of an open-drain bus (SDA and SCL), which every part on it needs.
 _OPEN_DRAIN_FUNCTIONS = tuple(dict.fromkeys(fn for name in OPEN_DRAIN_PROTOCOLS
                                             for fn in protocol(name).functions))
@@ -80,7 +85,10 @@ class BusBuilder(_Panel):
     pin function), set the supply, the mode, the trace and the pull-up (``auto`` or an
     E24 value); the figures, the checks and the pull-up window chart (SDA) follow each
     change.  The bench panel turns a rise time measured on the board, with the probe's
-    capacitance, back into the bus capacitance.  :meth:`save` writes the design file.
+    capacitance, back into the bus capacitance: on SDA of the bus built here, or on a
+    line of a saved design read with :meth:`load_bench_design` (its I2C and SMBus lines,
+    and each GPIO line an open-drain pin drives that has a pull-up), where its answer is
+    ``pinlib measured``'s.  :meth:`save` writes the design file.
 
     Parameters
     ----------
@@ -106,10 +114,14 @@ class BusBuilder(_Panel):
     ``geometry``, ``length``, ``width``, ``height``, ``thickness``, ``er``,
     ``capacitance_per_length``, ``delay_per_length``, ``extra_capacitance``, ``pullup``
     (``"auto"`` or an E24 value), ``pullup_tolerance``, ``rise_measured``, ``c_probe``,
-    ``levels``, ``title``.  In the browser the quantities are typed with their units
-    (:class:`~pinlib.present.widgets.common.QuantityField`); a refused text leaves everything as it
-    was and says why under the field.  A controller the filters no longer allow stays the
-    controller, and ``controller_note`` says why it does not fit.
+    ``levels``, ``bench_file`` (a saved design whose lines the bench panel offers:
+    :meth:`load_bench_design`), ``bench_line`` (the line measured: ``""`` for SDA of the
+    bus built here, else ``bus/line`` or ``bus/segment/line`` of the saved design; set
+    after ``bench_file``), ``title``.  In the browser the quantities are typed with
+    their units (:class:`~pinlib.present.widgets.common.QuantityField`); a refused text
+    leaves everything as it was and says why under the field.  A controller the filters
+    no longer allow stays the controller, and ``controller_note`` says why it does not
+    fit.
 
     Attributes
     ----------
@@ -124,6 +136,8 @@ class BusBuilder(_Panel):
         The pull-up window chart.
     bench : BenchReading or None
         The bench panel's answer (None until a rise time is entered).
+    bench_design : Design or None
+        The saved design whose lines the bench panel offers (None until one is loaded).
     text : str
         The design file text.
     """
@@ -143,6 +157,9 @@ class BusBuilder(_Panel):
         self.window_data = None
         self.bench: BenchReading | None = None
         self.bench_error: PinlibError | None = None
+        self.bench_design = None
+        self._bench_lines: dict = {}  # the saved design's lines offered, by key
+        self._bench_refused: dict = {}  # its lines not offered: why, by key
         self.text = ""
         self.saved_path: Path | None = None
         self._peripherals: list[tuple[str, str]] = []
@@ -236,6 +253,14 @@ class BusBuilder(_Panel):
     def _bench_controls(self) -> None:
         """The bench reading (a measured rise time) and saving the design."""
         q = self._quantity
+        self.bench_file = W.Text(value="", placeholder="designs/board.toml",
+                                 description="Design", style=style(),
+                                 layout=field_layout())
+        self.bench_load = W.Button(description="Load", layout=button_layout())
+        self.bench_file_error = note_widget()
+        self.bench_line = W.Dropdown(options=[BUILT_LINE], value=BUILT_LINE[1],
+                                     description="Line", style=style(), layout=field_layout())
+        self.bench_line_note = note_widget()
         self.rise_measured = q(QuantityField("rise_measured", "Rise measured", "s", None,
                                              lo=0.0, hi=1e-3, shown=("ns", 1e-9),
                                              optional=True, placeholder="e.g. 250 ns"),
@@ -265,6 +290,8 @@ class BusBuilder(_Panel):
             c.observe(self._filters_changed, names="value")
         self._watch(self.mode, self.pullup_mode, self.pullup, self.title)
         self.levels.observe(lambda change: self._bench(), names="value")
+        self.bench_line.observe(lambda change: self._quiet or self._bench(), names="value")
+        self.bench_load.on_click(lambda _b: self._bench_load_clicked())
         self.add_button.on_click(lambda _b: self.pick.value and
                                  self.add_peripheral(self.pick.value))
         self.remove_button.on_click(lambda _b: self.placed.value and
@@ -280,6 +307,8 @@ class BusBuilder(_Panel):
         self._choice("function", self.function)
         self._setters["pullup"] = self._set_pullup
         self._choice("levels", self.levels)
+        self._setters["bench_file"] = self.load_bench_design
+        self._setters["bench_line"] = self._set_bench_line
         self._setters["title"] = lambda v: setattr(self.title, "value", str(v))
 
     # ---------------------------------------------------------------- choices
@@ -490,6 +519,77 @@ class BusBuilder(_Panel):
         self.notes_html.value = notes_html([br])
         self._bench()
 
+    # ---------------------------------------------------------------- the bench
+    def load_bench_design(self, path: str | os.PathLike | None) -> None:
+        """Read a saved design whose lines the bench panel offers beside SDA of the bus
+        built here: each I2C and SMBus line (per segment), and each GPIO line an
+        open-drain pin drives that has a pull-up
+        (:func:`pinlib.engines.bench.measurable_lines`); the others are listed under the
+        Line with why.  The line chosen stays when the design still has it; else the
+        first line offered is chosen.  A file that cannot be loaded raises, and the lines
+        offered stay as they were.  None or ``""``: no saved design (SDA of the bus built
+        here only)."""
+        from pinlib.engines.bench import measurable_lines
+        from pinlib.model.design import load_design
+
+        if path is None or not str(path).strip():
+            with self._hold():
+                self.bench_file.value = ""
+                self.bench_design, self._bench_lines, self._bench_refused = None, {}, {}
+                self.bench_line.options = [BUILT_LINE]
+                self.bench_line.value = BUILT_LINE[1]
+            self.bench_file_error.value = self.bench_line_note.value = ""
+            self._bench()
+            return
+        design = load_design(find_file(path), library_folders=self.folders)
+        offered, refused = measurable_lines(design)
+        lines = {_line_key(x): x for x in offered}
+        keep = self.bench_line.value if self.bench_line.value in lines else None
+        with self._hold():
+            self.bench_file.value = str(path)
+            self.bench_design, self._bench_lines = design, lines
+            self._bench_refused = {"/".join(x for x in (bus, line) if x): err
+                                   for bus, line, err in refused}
+            self.bench_line.options = [BUILT_LINE] + [(x.place(), k) for k, x in lines.items()]
+            self.bench_line.value = keep or next(iter(lines), BUILT_LINE[1])
+        self.bench_file_error.value = ""
+        name = e(Path(str(path)).name)
+        said = (f"{len(lines)} line{'' if len(lines) == 1 else 's'} of <b>{name}</b> offered "
+                "under Line." if lines else
+                f"<b>{name}</b> has no line a rise time gives the bus capacitance of.")
+        if refused:
+            items = "".join(f"<li>{e(_refused_place(design, bus, line))}: {e(err.problem)}"
+                            + (f" ({e(err.hint)})" if err.hint else "") + "</li>"
+                            for bus, line, err in refused)
+            said += (f' Not offered:<ul style="{BLOCK};margin:2px 0;padding-left:18px">'
+                     f"{items}</ul>")
+        self.bench_line_note.value = block(said, size=11)
+        self._bench()
+
+    def _set_bench_line(self, value) -> None:
+        if value not in _values(self.bench_line.options):
+            why = self._bench_refused.get(value)
+            raise InputError(M.NOT_ALLOWED_VALUE, field="bench_line", value=value,
+                             expected='"" (SDA of the bus built here)' + "".join(
+                                 f", {k}" for k in self._bench_lines),
+                             hint=None if why is None else f"not offered: {why.problem}")
+        self.bench_line.value = value
+
+    def _bench_load_clicked(self) -> None:
+        path = self.bench_file.value.strip()
+        try:
+            if not path or Path(path).is_dir():
+                raise InputError(M.DESIGN_PATH_NEEDED, field="design",
+                                 value=path or None,
+                                 expected="a design file path such as "
+                                          "designs/gpio-reset-board.toml")
+            self.load_bench_design(path)
+        except PinlibError as err:
+            # where, as the command names it (the file and line, the field)
+            kept = ("" if self.bench_design is None else
+                    f"The lines offered are still those of {self.bench_design.path}.")
+            self.bench_file_error.value = error_html(err) + (note(kept) if kept else "")
+
     def _bench(self) -> None:
         from pinlib.engines.opendrain import capacitance_from_rise
 
@@ -505,6 +605,10 @@ class BusBuilder(_Panel):
         self.bench, self.bench_error = None, None
         self._bench_shown = ""
         t = self.rise_measured.value
+        line = self._bench_lines.get(self.bench_line.value)
+        if line is not None:
+            self._bench_saved(line, t)
+            return
         if self.window_data is None:
             self.bench_html.value = note("the bench panel needs a design that evaluates")
             return
@@ -528,6 +632,25 @@ class BusBuilder(_Panel):
             f"<b>{format_si(cb, 'F')}</b> (the model's Cb: {format_si(w.chosen_cb, 'F')}); "
             f"rise time without the probe <b>{format_si(rise, 's')}</b> "
             f"({lo * 100:.0f}–{hi * 100:.0f} %, as measured).</div>")
+
+    def _bench_saved(self, line, t: float | None) -> None:
+        """The reading on a saved design's line: ``pinlib measured``'s answer."""
+        from pinlib.engines.bench import compare_rise
+
+        if t is None or t <= 0:
+            self.bench_html.value = note("enter the rise time read on the oscilloscope")
+            return
+        levels, c_probe = self.levels.value, self.c_probe.value
+        try:
+            got = compare_rise(self.bench_design, line.bus, t, c_probe, levels=levels,
+                               **line.arguments())
+        except PinlibError as err:
+            self.bench_error = err
+            self.bench_html.value = inline_error(err)
+            return
+        self.bench = BenchReading(t, c_probe, tuple(levels), got.rp, got.cb, got.rise_alone,
+                                  got.cb_model, line=line, comparison=got)
+        self.bench_html.value = self._bench_shown = comparison_html(got)
 
     def save(self, path: str | os.PathLike, *, overwrite: bool = False) -> Path:
         """Write the design file atomically, after loading it back as a check.
@@ -605,8 +728,10 @@ class BusBuilder(_Panel):
             with_button_below(self.placed, self.remove_button),
             heading("Trace"), self.trace.box, self.extra_capacitance.box,
             heading("Pull-up"), self.pullup_mode, self.pullup, self.pullup_tolerance.box,
-            heading("Bench: a measured rise"), self.rise_measured.box, self.c_probe.box,
-            self.levels, self.bench_html,
+            heading("Bench: a measured rise"),
+            with_button_below(self.bench_file, self.bench_load), self.bench_file_error,
+            self.bench_line, choice_line(self.bench_line), self.bench_line_note,
+            self.rise_measured.box, self.c_probe.box, self.levels, self.bench_html,
             heading("Save"), with_button_below(self.save_path, self.save_button),
             self.save_overwrite, self.save_error,
         ]
@@ -615,3 +740,17 @@ class BusBuilder(_Panel):
         return W.VBox([self._header("Start a design: an I2C/SMBus bus from library parts"),
                        self.title, self._columns(controls, outputs, [self.checks_html])],
                       layout=W.Layout(width="100%"))
+
+
+def _line_key(line) -> str:
+    """The key of a saved design's line on the Line dropdown: ``bus/line`` or
+    ``bus/segment/line``."""
+    return "/".join(x for x in (line.bus, line.segment, line.signal) if x)
+
+
+def _refused_place(design, bus_id: str, line: str | None) -> str:
+    """A bus or line not offered, named with its protocol: ``flash (spi)``,
+    ``fpga-enable, line enable``."""
+    if line is not None:
+        return f"{bus_id}, line {line}"
+    return f"{bus_id} ({design.bus(bus_id).protocol})"

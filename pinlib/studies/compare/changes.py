@@ -230,6 +230,8 @@ def _show_value(entry: dict | None) -> str:
     v = entry.get("value")
     if isinstance(v, (bool, str)) or v is None:
         return format_figure(v, "")
+    if isinstance(v, list):  # a list the part states (its SPI modes), as the file writes it
+        return "[" + ", ".join(str(x) for x in v) + "]"
     return format_si(v, entry.get("unit", ""))
 
 
@@ -476,13 +478,16 @@ def _pin_of(key: str) -> str | None:
 
 #: The SPI signal whose pin each timing value concerns, by the device's role: a
 #: peripheral's output times are its CIPO's, its setup and hold its COPI's; a
-#: controller's the other way round.
+#: controller's the other way round, and its CS lead and lag (t_cs_setup, t_cs_hold) its
+#: CS's.
 _TIMING_SIGNAL = {
     "peripheral": {"timing.t_valid": "cipo", "timing.t_cs_valid": "cipo",
                    "timing.t_setup": "copi", "timing.t_hold": "copi",
-                   "timing.t_cs_setup": "cs", "timing.t_cs_hold": "cs"},
+                   "timing.t_cs_setup": "cs", "timing.t_cs_hold": "cs",
+                   "timing.t_high": "sclk", "timing.t_low": "sclk"},
     "controller": {"timing.t_valid": "copi", "timing.t_setup": "cipo",
-                   "timing.t_hold": "cipo"},
+                   "timing.t_hold": "cipo", "timing.t_cs_setup": "cs",
+                   "timing.t_cs_hold": "cs"},
 }
 
 

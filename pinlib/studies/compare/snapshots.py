@@ -18,7 +18,7 @@ from pinlib.core.records import Record
 from pinlib.core.tomlfile import UTF8_BOM, atomic_write, read_regular
 from pinlib.library.loader import BUILTIN_DIR
 from pinlib.library.schema import Part
-from pinlib.library.values import Sourced
+from pinlib.library.values import Sourced, StatedList
 from pinlib.model.result import FORMAT as RESULT_FORMAT
 from pinlib.model.result import json_number
 from pinlib.studies.snapshotcheck import check_snapshot
@@ -117,6 +117,9 @@ def part_values(part: Part, rails: dict | None = None, library=None) -> dict[str
             return
         if isinstance(obj, Sourced):
             out[key] = _sourced_entry(obj, vdd, library)
+        elif isinstance(obj, StatedList):  # one setting with its file's provenance
+            out[key] = {"value": list(obj), "basis": obj.basis, "source": obj.source,
+                        "origin": obj.origin}
         elif isinstance(obj, Record):
             for name in type(obj).fields():
                 if name == "description":

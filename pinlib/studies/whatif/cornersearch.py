@@ -213,7 +213,8 @@ def _worst(bus, run, k: int, exhaustive_limit: int) -> tuple[np.ndarray, str]:
         verts = (np.array(list(itertools.product((-1.0, 1.0), repeat=k))) if k
                  else np.zeros((1, 0)))
         mg = _key(_margins(run(verts)))
-        return verts[np.argmin(mg, axis=0)], (f"all {len(verts)} corners of {k} parameters"
+        return verts[np.argmin(mg, axis=0)], (f"all {len(verts)} corners of {k} parameter"
+                                              f"{'s' if k > 1 else ''}"
                                               if k else "no toleranced parameter")
     return _screen(run, k), (f"{k} parameters: each screened alone at both ends, then the "
                              "combined corner improved one flip at a time")
