@@ -503,3 +503,27 @@ def test_a_lines_check_names_its_signal_as_pinlib_check_does():
         wc = c.worst_check
         assert f"{wc['line'].upper()} " in text
         assert f" {wc['line']} " not in text
+
+
+def test_a_gpio_position_shows_each_buss_slowest_edge_not_a_clock():
+    # at the GPIO example's U3 every row read "f(max)@reset —" (a GPIO bus has no
+    # clock), and the other bus's column was left out at 80 columns: the figure of a
+    # GPIO bus is its slowest far-end edge, as "pinlib check" gives it on the bus's line
+    from pinlib.engines.dispatch import check_design
+
+    gpio = ROOT / "workbooks" / "designs" / "gpio-reset-board.toml"
+    d = load_design(gpio)
+    r = cand.rank_candidates(d, "U3")
+    now = r.candidate("fpga-io-3v3")
+    res = {b.id: b for b in check_design(d).buses}
+    for bus in ("reset", "fpga-enable"):
+        # derived: the largest edge_rise_time / edge_fall_time of the bus's lines
+        want = max(ln.figures[n].value for ln in res[bus].lines
+                   for n in ("edge_rise_time", "edge_fall_time"))
+        assert now.figures[bus]["worst_edge"][0] == pytest.approx(want, rel=1e-9)
+        assert "max_clock" not in now.figures[bus]
+    text = r.format_text(width=80)
+    assert "f(max)" not in text and "edge@reset" in text and "edge@fpga-enable" in text
+    assert all(len(ln) <= 80 for ln in text.splitlines())
+    doc = r.to_json()
+    assert doc["candidates"][0]["figures"]["reset"]["worst_edge"]["unit"] == "s"

@@ -542,7 +542,7 @@ def test_swap_over_designs_fits_the_terminal(tmp_path, capsys, monkeypatch, cols
     assert max(len(ln) for ln in lines) <= cols
     first = next(ln for ln in lines if ln.startswith("a-board"))
     assert "WARN → FAIL" in first
-    assert any(ln.startswith("2 design(s): 2 changed") for ln in lines)
+    assert any(ln.startswith("2 designs: 2 changed") for ln in lines)
 
 
 def test_swap_over_designs_refuses_mixed_forms(tmp_path, capsys):
@@ -663,3 +663,76 @@ def test_a_new_design_explains_itself_without_the_source_documents(tmp_path):
     assert re.search(r'^lines\.sclk = \{ series_resistor = "auto", route = \[$', routed,
                      flags=re.MULTILINE) and spi.devices
     assert main(["check", str(path)]) in (0, 1)
+
+
+def test_swap_over_designs_names_an_old_part_no_library_holds(tmp_path, capsys):
+    # "pinlib swap --part eeprom-i2=eeprom-hicap a.toml" (a typo of eeprom-i2c) said
+    # "no position to change" and exited 0, as though no design used the part, where
+    # "pinlib parts used-by eeprom-i2" names the typo
+    a = _board(tmp_path, "a.toml")
+    before = a.read_text(encoding="utf-8")
+    assert main(["swap", "--part", "eeprom-i2=rtc-i2c", str(a)]) == 2
+    out, err = capsys.readouterr()
+    err = " ".join(err.split())
+    assert "field '--part'" in err and "(got 'eeprom-i2')" in err
+    assert "closest: eeprom-i2c" in err
+    assert a.read_text(encoding="utf-8") == before
+    # a known part that no design places still reads as before
+    assert main(["swap", "--part", "led-driver-fmplus=rtc-i2c", str(a)]) == 0
+    assert "no position to change" in capsys.readouterr().out
+
+
+def test_many_designs_in_a_deep_folder_keep_their_names_and_counts_at_80_columns(
+        tmp_path, capsys, monkeypatch):
+    # designs in a folder of 76 characters read at 80 columns as
+    # "WARN  <folder>/and-another-level-of-folders-below-i…" twice (which design is
+    # which?), and the short one padded to their width as "FAIL  spi-route.toml…": the
+    # names, the counts and an error's message were cut with the title
+    monkeypatch.chdir(tmp_path)
+    deep = Path("a-rather-long-folder-name-for-boards") / "and-another-level-of-folders-below"
+    (tmp_path / deep).mkdir(parents=True)
+    _board(tmp_path / deep, "demo.toml")
+    (tmp_path / deep / "gpio.toml").write_text(
+        (ROOT / "workbooks" / "designs" / "gpio-reset-board.toml").read_text(encoding="utf-8"),
+        encoding="utf-8")
+    _board(tmp_path, "b.toml")
+    (tmp_path / "c.toml").write_text('format = "pinlib.design/1"\ntitle = 3\n',
+                                     encoding="utf-8")
+    monkeypatch.setenv("COLUMNS", "80")
+    assert main(["check", str(deep / "*.toml"), "b.toml", "c.toml", "--jobs", "1"]) == 2
+    out, err = capsys.readouterr()
+    lines = out.splitlines()
+    assert all(len(ln) <= 80 for ln in lines), out
+    flat = " ".join(out.split())
+    for name in ("demo.toml", "gpio.toml", "b.toml"):
+        assert name in flat
+    # each checked design's counts, whole (the demo's twice, the GPIO example's once)
+    assert len(re.findall(r"\d+ pass, \d+ warn, \d+ fail —", flat)) == 3
+    # the error's message whole, as standard error has it: nothing of it cut
+    message = " ".join(err.split()).split("c.toml: not checked: ", 1)[1]
+    assert "ERROR c.toml" in flat and f"not checked: {message}" in flat
+
+
+def test_swap_over_designs_in_a_deep_folder_never_cuts_a_name(tmp_path, capsys, monkeypatch):
+    # "pinlib swap --part ..." at 80 columns cut a design's path where the width fell:
+    # ".../and-another-level-of-folders-below-it/demo." then "    toml  no position..."
+    monkeypatch.chdir(tmp_path)
+    deep = Path("a-rather-long-folder-name-for-boards") / "and-another-level-of-folders-below-it"
+    (tmp_path / deep).mkdir(parents=True)
+    _board(tmp_path / deep, "demo.toml")
+    _board(tmp_path / deep, "second-demo-board.toml")
+    monkeypatch.setenv("COLUMNS", "80")
+    assert main(["swap", "--part", "nor-flash-spi=adc-spi", str(deep / "*.toml")]) in (0, 1)
+    lines = capsys.readouterr().out.splitlines()
+    assert all(len(ln) <= 80 for ln in lines)
+    for name in ("demo.toml", "second-demo-board.toml"):
+        assert any(ln.strip().startswith(name) or f"/{name}" in ln for ln in lines), lines
+
+
+def test_swap_over_designs_counts_in_words():
+    # "5 check(s) changed status, 16 margin(s) moved, 24 figure(s) moved" and
+    # "3 design(s): ..." where "pinlib check" over designs writes "3 designs: ..."
+    from pinlib.present.designs import _counted
+
+    assert _counted(1, "check") == "1 check" and _counted(0, "check") == "0 checks"
+    assert _counted(16, "margin") == "16 margins"

@@ -134,3 +134,26 @@ def test_a_value_or_a_known_option_is_not_called_unknown(capsys):
         build_parser().parse_args(["report", "board.toml", "--thresh", "5 %", "--seed", "-3"])
     err = capsys.readouterr().err
     assert "unrecognized" not in err and "one of the arguments --html --md" in err
+
+
+@pytest.mark.parametrize("text, levels", [
+    ("30,70", (0.30, 0.70)), ("0.3,0.7", (0.3, 0.7)), ("10,90", (0.10, 0.90)),
+    ("0,70", (0.0, 0.70)), ("0.5%,70%", (0.005, 0.70)), ("30%,70", (0.30, 0.70)),
+])
+def test_measuring_levels_read_as_percent_or_fractions(text, levels):
+    from pinlib.cli.commands.measured import levels_type
+
+    assert levels_type(text) == pytest.approx(levels, rel=1e-12)
+
+
+@pytest.mark.parametrize("text", ["0.3,70", "0.1,90"])
+def test_measuring_levels_refuse_a_fraction_beside_a_percentage(text):
+    # "--levels 0.3,70" read as 0.3 % to 70 % (percent once a number exceeds 1) and the
+    # answer showed "(0%-70%)": one number as a fraction and one in % is a slip; the
+    # refusal says how to write each form ("%" written out reads as percent)
+    from pinlib.cli.commands.measured import levels_type
+
+    with pytest.raises(argparse.ArgumentTypeError) as got:
+        levels_type(text)
+    msg = str(got.value)
+    assert f"(got {text!r})" in msg and "30,70" in msg and "0.3,0.7" in msg

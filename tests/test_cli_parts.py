@@ -617,3 +617,24 @@ def test_cli_stays_free_of_pandas_and_altair(lib):
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                           cwd=Path(__file__).resolve().parents[1], timeout=120)
     assert done.returncode == 0, done.stderr
+
+
+def test_check_keeps_a_long_path_whole_on_a_line_of_its_own(lib, capsys, tmp_path, monkeypatch):
+    # at 80 columns a folder's path was cut mid-name where the width fell
+    # (".../with-another-level-bel" then "ow/parts/a.toml:10, ..."), and the closing line
+    # "checked 1 file in <path>: 1 problem" ran past the width unwrapped.  A path that
+    # fits the width goes whole on a line of its own; a longer one breaks after a "/"
+    rel = "a" * 40 + "/" + "b" * 37  # invented folder names: 78 characters
+    (tmp_path / rel).mkdir(parents=True)
+    (tmp_path / rel / "a.toml").write_text(EEPROM.replace('id = "eeprom"', 'id = "a"').replace(
+        '"8 pF"', '"8 pH"'), encoding="utf-8")
+    monkeypatch.setenv("COLUMNS", "80")
+    code, out, _ = run(capsys, "parts", "check", rel, "--library", "team")
+    assert code == 1
+    lines = out.splitlines()
+    assert all(len(ln) <= 80 for ln in lines), out
+    # the problem's "<path>/a.toml:10," (89 characters) broken after its last fitting "/"
+    i = lines.index(rel + "/")
+    assert lines[i + 1] == "a.toml:10," and lines[i + 2].startswith("    field 'pins.sda.c_in'")
+    # the closing line's "<path>:" (79 characters) whole and unindented
+    assert lines[-3:] == ["checked 1 file in", rel + ":", "    1 problem"]

@@ -1117,3 +1117,19 @@ def test_the_margin_heading_says_how_a_margin_in_seconds_moved():
     assert both.margin_heading() == ("Margins that moved more than 5 points, or 5 % of "
                                      "themselves in volts or seconds (status unchanged)")
     assert both.margin_heading() + ":" in both.format_text()
+
+
+def test_a_change_of_library_folders_reads_as_words_not_python_lists(board):
+    # "pinlib check" after a swap to a team part noted
+    # "library folders differ: ['builtin'] → ['builtin', 'team']"
+    design = load_design(board)
+    new = snapshot(design, check_design(design))
+    old = json.loads(json.dumps(new))
+    old["library"]["folders"] = ["builtin"]
+    new["library"]["folders"] = ["builtin", "team"]
+    old["library"]["overrides"] = {}
+    new["library"]["overrides"] = {"eeprom-i2c": "team/eeprom-i2c.toml"}
+    notes = compare(old, new).notes
+    assert "library folders differ: builtin → builtin, team" in notes
+    assert "built-in parts overridden by team parts differ: (none) → eeprom-i2c" in notes
+    assert not any("[" in n or "'" in n for n in notes)

@@ -86,3 +86,16 @@ def test_relative_links_resolve(page):
         if "://" in target or target.startswith("mailto:"):
             continue
         assert (path.parent / target).exists(), f"{page}: {target}"
+
+
+def test_the_result_page_names_every_method_of_a_candidate():
+    # result.md listed `vectorized` and `per-candidate` while the JSON of an SPI or GPIO
+    # position says "batched" (the edges of many candidates solved together)
+    import re
+
+    src = (ROOT / "pinlib" / "studies" / "candidates.py").read_text(encoding="utf-8")
+    methods = set(re.findall(r'"(vectorized|batched|per-candidate)"', src))
+    assert methods == {"vectorized", "batched", "per-candidate"}
+    page = (ROOT / "docs" / "formats" / "result.md").read_text(encoding="utf-8")
+    row = next(ln for ln in page.splitlines() if ln.startswith("| `method` |"))
+    assert all(f"`{m}`" in row for m in methods), row

@@ -135,3 +135,11 @@ def test_a_note_that_starts_with_a_figure_id_starts_with_its_label():
     assert note_label("cipo_setup_margin: not computed") == "CIPO setup margin: not computed"
     assert note_label("SPI mode 0 (CPOL 0, CPHA 0)") == "SPI mode 0 (CPOL 0, CPHA 0)"
     assert note_label("overshoot 881 mV and undershoot") == "overshoot 881 mV and undershoot"
+
+
+def test_the_missing_pull_up_check_is_named_as_the_trade_writes_it():
+    # a GPIO line with an open-drain driver and no pull-up failed as "Pull up: U2.reset
+    # is open-drain and reset has no pull-up"; the trade writes the noun with a hyphen
+    from pinlib.core.labels import check_label
+
+    assert check_label("pull-up") == "Pull-up"

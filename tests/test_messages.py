@@ -519,6 +519,15 @@ def _(env):
     return env.capsys.readouterr().out
 
 
+@case("RATING_NO_WARN_BAND")
+def _(env):  # beside the warning margin of every detailed result, the ratings have none
+    from pathlib import Path
+
+    gpio = Path(__file__).resolve().parents[1] / "workbooks" / "designs" / "gpio-reset-board.toml"
+    assert main(["check", str(gpio), "--detail"]) == 0
+    return " ".join(env.capsys.readouterr().out.split())
+
+
 @case("OVERRIDES_LEFT_OUT", M.OVERRIDES_LEFT_OUT.format(ids="eeprom-i2c"))
 def _(env):
     env.write("team/eeprom-i2c.toml", PART.format(id="eeprom-i2c"))  # overrides the built-in

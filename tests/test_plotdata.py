@@ -295,3 +295,27 @@ def test_a_star_of_eight_draws_each_receiver_in_its_own_colour_and_dash(tmp_path
     # a line without a route keeps a legend entry per trace
     demo = load_design(DEMO)
     assert plotdata.waveform_data(demo.bus("flash"), demo, "sclk").groups == {}
+
+
+def test_an_open_drain_lines_high_level_is_not_called_vdd():
+    # the GPIO example's reset line (a 10 kΩ pull-up to 3.3 V, 13 µA of leakage on the
+    # net) settles at 3.17 V, and its waveform chart and caption named that "VDD 3.17 V"
+    # on a 3.3 V board; a push-pull line's high level is its driver's supply
+    design = load_design(ROOT / "workbooks" / "designs" / "gpio-reset-board.toml")
+    w = plotdata.waveform_data(design.bus("reset"), design, "reset")
+    # derived: 3.3 V − (1 + 2 + 10) µA × 10 kΩ (the invented parts' leakage)
+    assert w.vdd == pytest.approx(3.3 - 13e-6 * 10e3, rel=1e-9)
+    assert w.high_name == "high level"
+    chart = charts.waveforms(w.t, w.traces, v_il=w.v_il, v_ih=w.v_ih, vdd=w.vdd,
+                             vdd_name=w.high_name)
+    spec = str(chart.to_dict())
+    assert "high level 3.17 V" in spec and "VDD 3.17 V" not in spec
+    w = plotdata.waveform_data(design.bus("fpga-enable"), design, "enable")
+    assert w.high_name == "VDD" and w.vdd == pytest.approx(3.3)
+
+
+def test_the_board_note_spells_the_pull_up_as_a_word():
+    # the reset line's caption ended "worst corner of its tolerances (supply, pullup)"
+    design = load_design(ROOT / "workbooks" / "designs" / "gpio-reset-board.toml")
+    w = plotdata.waveform_data(design.bus("reset"), design, "reset")
+    assert any(n.endswith("worst corner of its tolerances (supply, pull-up)") for n in w.notes)

@@ -324,7 +324,7 @@ def test_a_bus_that_fails_on_a_check_without_a_margin_names_it_not_a_passing_one
     bus.lines.append(ln)
     line = bus_line(bus)
     assert "Supply range" not in line and "+4 %" not in line, line
-    assert "failing check Pull up (RESET U10)" in line, line
+    assert "failing check Pull-up (RESET U10)" in line, line
     # a warning without a margin is named the same way beside passing margins
     ln.checks[0] = Check("contention", "warn", 2, 1, "", None, "common practice, no source",
                          "two drivers")
@@ -379,3 +379,60 @@ def test_the_ringing_row_says_its_numbers_count_re_crossings(monkeypatch, capsys
                         for r in rows), rows
     ringing = [c for b in demo.results() for _, _, c in b.all_checks() if c.id == "ringing"]
     assert ringing and all(c.to_json()["unit"] == "" for c in ringing)
+
+
+def test_the_warning_band_says_a_rating_has_none(capsys, tmp_path):
+    # the GPIO example's status line read "(warn below 10% margin)" above "Supply range
+    # U3 ... +2 %" passing: a rating (a part's supply range, a clock limit, an input's
+    # highest voltage) passes up to its limit, and the line now says so, in every form
+    gpio = ROOT / "workbooks" / "designs" / "gpio-reset-board.toml"
+    rule = ("a rating — a supply range, a clock limit, a highest input voltage — passes up to "
+            "its limit")
+    assert main(["check", str(gpio), "--detail"]) == 0
+    assert f"(warn below 10% margin; {rule})" in " ".join(capsys.readouterr().out.split())
+    for kind, name in (("--md", "r.md"), ("--html", "r.html")):
+        assert main(["report", str(gpio), kind, str(tmp_path / name)]) == 0
+        text = " ".join((tmp_path / name).read_text(encoding="utf-8").split())
+        assert f"(warning below 10% margin; {rule})" in text, kind
+
+
+def test_the_detail_command_of_a_long_path_pastes_whole_at_80_columns():
+    # "Every figure and check: pinlib check /tmp/.../a-rather-long-folder-name-for-board"
+    # then "    s/and-another-.../gpio-reset-board.toml --detail": the path was cut inside
+    # a name, and what a reader pasted was no longer the command.  The command is
+    # continued as a shell reads it: lines end in a backslash, a word too long for a
+    # line goes on after one with no space (the shell joins the two halves)
+    import shlex
+
+    result = check_file(ROOT / "workbooks" / "designs" / "gpio-reset-board.toml")
+    path = ("/tmp/hb/a-rather-long-folder-name-for-boards/"
+            "and-another-level-of-folders-below-it/gpio-reset-board.toml")  # invented
+    more = f"pinlib check {path} --detail"
+    text = format_text(result, width=80, more=more)
+    lines = text.splitlines()
+    assert all(len(ln) <= 80 for ln in lines), text
+    start = next(i for i, ln in enumerate(lines) if ln.startswith("Every figure and check:"))
+    pasted = "\n".join(lines[start:]).removeprefix("Every figure and check:")
+    assert shlex.split(pasted.replace("\\\n", "")) == ["pinlib", "check", path, "--detail"]
+    # a command that fits is one line below the words, as before
+    short = format_text(result, width=80, more="pinlib check board.toml --detail")
+    assert "Every figure and check: pinlib check board.toml --detail" in short
+
+
+def test_a_long_path_in_the_detail_and_the_swap_heading_is_never_cut_inside_a_name(
+        tmp_path, capsys, monkeypatch):
+    # "design: ... (/tmp/hb/a-r" then "    ather-long-folder-name-...": --detail's
+    # heading and swap's cut a design's path where the width fell
+    deep = tmp_path / "a-rather-long-folder-name-for-boards" / "and-another-level-of-folders"
+    deep.mkdir(parents=True)
+    design = deep / "gpio-reset-board.toml"
+    design.write_text((ROOT / "workbooks" / "designs" / "gpio-reset-board.toml")
+                      .read_text(encoding="utf-8"), encoding="utf-8")
+    monkeypatch.setenv("COLUMNS", "80")
+    for argv in (["check", str(design), "--detail"], ["swap", str(design), "U3=mcu-3v3"]):
+        main(argv)
+        lines = capsys.readouterr().out.splitlines()
+        assert all(len(ln) <= 80 for ln in lines)
+        for name in (*tmp_path.parts[1:], "a-rather-long-folder-name-for-boards",
+                     "and-another-level-of-folders", "gpio-reset-board.toml"):
+            assert any(name in ln for ln in lines), (argv[0], name)

@@ -1283,3 +1283,60 @@ def test_a_warning_slack_in_seconds_is_among_the_histograms_drawn():
     run = McResult("d", 4, 1, "uniform", [], rows, {}, None, np.zeros((4, 0)))
     charts, _ = review._mc_charts(run, review._Keys())
     assert len(charts) == review.MC_CHARTS and "C99" in charts[0].title
+
+
+def test_markdown_writes_ampersands_and_arrows_as_themselves_where_they_are_no_markup():
+    # the notes of every push-pull line read "(Johnson &amp; Graham, ...)" and
+    # "L / (R^2 C) &lt;= 0.01", a series resistor's finding "overshoot 703 mV -&gt; 0 V":
+    # as plain text at 80 columns a reviewer read the entities.  Only a "<" that could
+    # open HTML or an autolink and an "&" that could start a character reference need one.
+    mt = review._mt
+    assert mt("Johnson & Graham") == "Johnson & Graham"
+    assert mt("L / (R^2 C) <= 0.01, 703 mV -> 0 V, 1 < 2 > 0") == \
+        "L / (R^2 C) <= 0.01, 703 mV -> 0 V, 1 < 2 > 0"
+    assert mt("<img src=x onerror=alert(1)>") == "&lt;img src=x onerror=alert(1)>"
+    assert mt("</p> <!-- x --> <?php <https://x.example>") == \
+        "&lt;/p> &lt;!-- x --> &lt;?php &lt;https://x.example>"
+    assert mt("&amp; &#60; &#x3C; &lt;") == "&amp;amp; &amp;#60; &amp;#x3C; &amp;lt;"
+    assert mt("sensors.scl<-display.sclk, <-x@y.example>") == \
+        "sensors.scl<-display.sclk, &lt;-x@y.example>"
+    # a ">" that starts the text, or a wrapped line, would open a block quote
+    assert mt("> 5 ns") == "\\> 5 ns"
+    from pinlib.present.review.markdown import _wrapped
+
+    text = "abcdefghij " * 6 + "a" * 11 + " > 5 ns tail"
+    lines = _wrapped(text, "- ")
+    assert len(lines) > 1 and not any(ln.strip().startswith(">") for ln in lines[1:]), lines
+
+
+def test_a_markdown_table_cell_shows_a_margin_beyond_the_scale_as_written():
+    # the checks tables read "\> +999 %" (before that "&gt; +999 %"): a block marker
+    # means nothing inside a table cell or after the start of a line, so text for a
+    # cell or the middle of a line keeps its first character as written
+    from pinlib.present.review.markdown import _m
+
+    assert _m("> +999 %") == "> +999 %"
+    assert _m("- 5 %") == "- 5 %" and _m("# 3") == "# 3"
+    assert _m("a|b *c*") == "a\\|b \\*c\\*"
+    assert _m("<b>") == "&lt;b>"
+
+
+def test_the_markdown_monte_carlo_table_cites_each_source_by_number(tmp_path):
+    # each row of the Monte Carlo table carried its limit's source in full, up to 300
+    # characters of plain text a line (the GPIO example's undershoot rows): the sources
+    # go under the table, each once, cited by number as the parts tables do
+    gpio = ROOT / "workbooks" / "designs" / "gpio-reset-board.toml"
+    out = tmp_path / "r.md"
+    assert main(["report", str(gpio), "--md", str(out), "--monte-carlo", "200",
+                 "--seed", "2"]) == 0
+    md = out.read_text(encoding="utf-8")
+    section = md[md.index("## Monte Carlo"):md.index("## Parts")]
+    rows = [ln for ln in section.splitlines() if ln.startswith("| ") and "---" not in ln]
+    head, body = rows[0], rows[1:]
+    assert head.endswith("| Source |") and body
+    assert all(re.search(r"\| \[\d+\] \|$", ln) for ln in body), body
+    assert max(len(ln) for ln in body) <= 160  # the numbers and the sensitivity text
+    assert "- [1] " in section and "common practice" in section
+    # every source written once
+    sources = [ln for ln in section.splitlines() if re.match(r"- \[\d+\] ", ln)]
+    assert len(sources) == len(set(ln.split("] ", 1)[1] for ln in sources))

@@ -935,3 +935,35 @@ def test_an_idle_peripherals_cipo_pin_is_checked_against_its_rating(tmp_path):
         assert cipo.figures[name].value == pytest.approx(max(c.value for c in got.values()),
                                                          rel=1e-12)
     assert not any("no check covers" in n for n in cipo.notes)
+
+
+def test_a_swap_that_puts_a_pin_on_a_line_whose_route_misses_the_device_is_refused(capsys):
+    # spi-route.toml's U4 (dac-spi) has no CIPO pin and the CIPO route does not reach
+    # it; "pinlib swap ... U4=adc-spi" gave a load error at the design file's line 36,
+    # a file the user had not touched, and "pinlib candidates ... U4" ranked seven parts
+    # as ERROR with that text.  The swap is a refusal in its own terms.
+    before = ROUTE_DESIGN.read_bytes()
+    assert main(["swap", str(ROUTE_DESIGN), "U4=adc-spi"]) == 2
+    err = " ".join(capsys.readouterr().err.split())
+    assert "U4 = adc-spi refused" in err
+    assert ("adc-spi pin 'cipo' (spi-cipo) would be on line cipo of bus shared, whose "
+            "route does not reach U4" in err)
+    assert "spi-route.toml:36" not in err
+    assert ROUTE_DESIGN.read_bytes() == before
+
+    from pinlib.studies.candidates import rank_candidates
+
+    ranking = rank_candidates(load_design(ROUTE_DESIGN), "U4")
+    assert [c.part for c in ranking.candidates] == ["dac-spi"]
+    assert all(c.status != "error" for c in ranking.candidates)
+    assert "cannot: pin functions, drives or routes" in " ".join(
+        ranking.format_text(width=80).split())
+
+
+def test_swap_help_names_the_route_refusal(capsys):
+    with pytest.raises(SystemExit):
+        main(["swap", "--help"])
+    out = " ".join(capsys.readouterr().out.split())
+    assert "a pin the old part lacks would sit on a routed line whose route does not reach " \
+           "the position" in out
+    assert "margins and figures that moved" in out

@@ -669,7 +669,7 @@ def test_monte_carlo_says_on_how_many_boards_a_passing_check_warned(capsys, monk
     row = next(ln for ln in out.splitlines() if "Translator gate drive Q1 " in ln)
     assert "(200/200)" in row and "warns on 200;" in row
     low = gate["margin"]["min"]
-    assert f"min  +{low * 1e3:.0f} mV  warns" in row  # it read "min  +21.3 %"
+    assert f"min +{low * 1e3:.0f} mV  warns" in row  # it read "min  +21.3 %"
     assert "a warning passing" in out
     assert not any("warns on" in ln for ln in out.splitlines() if "Supply range" in ln)
 
@@ -886,3 +886,25 @@ def test_a_margin_that_moves_by_rounding_only_does_not_vary():
                   (0.99, 1.0)), margins=margin)
     assert not row.varies and row.sensitivity_text() == "the same margin on every board"
     assert sensitivity.beyond_rounding(0.4, 0.4 + 1e-9)   # a real spread still varies
+
+
+def test_monte_carlo_rows_keep_min_with_its_margin_at_80_columns(capsys, monkeypatch):
+    # the GPIO example's rows wrapped as "... (2000/2000) min" then "+1.9 %  rail ...":
+    # the word and the margin it names were parted (padding of several spaces between
+    # them is no place the wrapping keeps together)
+    monkeypatch.setenv("COLUMNS", "80")
+    gpio = ROOT / "workbooks" / "designs" / "gpio-reset-board.toml"
+    assert main(["check", str(gpio), "--monte-carlo", "300", "--seed", "1"]) == 0
+    lines = capsys.readouterr().out.splitlines()
+    rows = [ln for ln in lines if re.search(r"\bmin\b", ln)]
+    assert rows and all(re.search(r"\bmin [+−-]?\d", ln) for ln in rows), rows
+    assert all(len(ln) <= 80 for ln in lines)
+
+
+def test_the_interpolation_note_spells_the_pull_up_as_a_word(capsys):
+    # the GPIO example's Monte Carlo note read "(supply factor 0.97–1.03, pullup factor
+    # 0.99–1.01)": the parameter kind's id where the text elsewhere writes "pull-up"
+    gpio = ROOT / "workbooks" / "designs" / "gpio-reset-board.toml"
+    assert main(["check", str(gpio), "--monte-carlo", "200", "--seed", "1"]) == 0
+    out = " ".join(capsys.readouterr().out.split())
+    assert "pull-up factor 0.99–1.01" in out and "pullup factor" not in out

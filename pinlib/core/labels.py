@@ -93,6 +93,7 @@ SHORT: dict[str, str] = {
     "pullup_resistor": "Rp",
     "pullup": "Rp, effective",
     "max_clock": "f(max)",
+    "worst_edge": "edge",
     "load_capacitance": "C load",
     "series_resistor": "Rs",
 }
@@ -109,6 +110,7 @@ CHECKS: dict[str, str] = {
     "line-delay": "Line delay ≤ clock period",
     # its value and limit are counts (unit ""): the label says of what
     "ringing": "Ringing re-crossings",
+    "pull-up": "Pull-up",
     "bridge-gate-drive": "Translator gate drive",
     "crosstalk-low": "Crosstalk held low",
     "crosstalk-high": "Crosstalk held high",

@@ -505,6 +505,10 @@ EDGE_TIMES_NOT_LOADS = "edge_times do not match loads"
 SERIES_NAMES = "series needs one distinct name per curve"
 POINTS_FORM = "points must be (loads, times, labels)"
 POINTS_LENGTHS = "points: loads, times and labels differ in length"
+#: After a result's warning margin ("warn below 10% margin; ..."): the checks with no
+#: warning band, which pass up to their limit (warn_margin=0 in the engines).
+RATING_NO_WARN_BAND = ("a rating — a supply range, a clock limit, a highest input voltage — "
+                       "passes up to its limit")
 OPERATING_FORM = "operating must be (load, time) or (load, time, label)"
 CURVES_NOT_DRAWABLE = "no point of the curves can be drawn"
 TRACES_FORM = "traces must be a non-empty mapping of label to voltages"

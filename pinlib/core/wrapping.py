@@ -21,10 +21,31 @@ _GLUE = re.compile(r"(?<=\d) (?=[^\W\d_]|%|Ω|µ|°)|(?<=[≤≥<>]) (?=[+−-]?
 NBSP = "\u00a0"
 
 
-def wrap(text: str, cols: int, indent: str = "", subsequent: str = "    ") -> list[str]:
+def wrap(text: str, cols: int, indent: str = "", subsequent: str = "    ", *,
+         break_long: bool = False) -> list[str]:
     """One logical line wrapped to ``cols`` characters, continuation lines indented by
-    ``subsequent`` (after ``indent``); a word longer than the width is broken."""
+    ``subsequent`` (after ``indent``).  A word too long for its line (a file's path,
+    which a reader copies) goes on a line of its own, whole and unindented where it fits
+    the width so, else broken after a ``/`` (:func:`_path_pieces`), never inside a
+    name; with ``break_long=True`` it is broken where the width falls instead."""
     glued = _GLUE.sub(NBSP, text)
-    lines = textwrap.wrap(glued, max(10, cols), initial_indent=indent,
-                          subsequent_indent=indent + subsequent, break_on_hyphens=False)
+    width = max(10, cols)
+    lines = textwrap.wrap(glued, width, initial_indent=indent,
+                          subsequent_indent=indent + subsequent, break_on_hyphens=False,
+                          break_long_words=break_long)
+    if not break_long:
+        # textwrap puts a word too long for its line alone on one: there, unindented
+        lines = [piece for ln in lines
+                 for piece in ([ln] if len(ln) <= width else _path_pieces(ln.strip(), width))]
     return [ln.replace(NBSP, " ") for ln in lines] or [indent.rstrip()]
+
+
+def _path_pieces(word: str, width: int) -> list[str]:
+    """``word`` in lines of at most ``width`` characters, each ending after a ``/`` where
+    one lies within it (a path's folders stay whole), else cut at the width."""
+    out = []
+    while len(word) > width:
+        cut = word.rfind("/", 0, width) + 1 or width
+        out.append(word[:cut])
+        word = word[cut:]
+    return out + [word] if word else out

@@ -331,9 +331,10 @@ def _table_note(bus: Bus, grid) -> str:
              if len(set(kinds)) < len(kinds) else {})
 
     def axis_name(ax) -> str:
+        word = "pull-up" if ax.kind == "pullup" else ax.kind  # as the text writes it
         if kinds.count(ax.kind) < 2:
-            return f"{ax.kind} factor"
-        return f"{ax.kind} factor of " + ", ".join(names.get(k, str(k)) for k in ax.keys)
+            return f"{word} factor"
+        return f"{word} factor of " + ", ".join(names.get(k, str(k)) for k in ax.keys)
 
     axes = ", ".join(f"{axis_name(ax)} {ax.lo:.3g}–{ax.hi:.3g}" for ax in grid.axes)
     # the largest difference of a relative margin, in percentage points; under 0.001 the

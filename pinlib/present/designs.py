@@ -13,12 +13,52 @@ _WORDS = {"pass": "PASS", "warn": "WARN", "fail": "FAIL", "error": "ERROR"}
 def summary_line(s, width: int) -> str:
     """One design: status, path, then its counts and title, or why it was not checked."""
     head = f"{_WORDS.get(s.status, s.status.upper()):<6}{s.path:<{width}}  "
+    return head + _tail(s)
+
+
+def _tail(s) -> str:
+    """What follows a design's path: its counts and title, or why it was not checked."""
     if s.error is not None:
         message = s.error_here or s.error
-        return head + M.DESIGN_NOT_LOADED.format(path=s.path, message=message) \
+        return M.DESIGN_NOT_LOADED.format(path=s.path, message=message) \
             .removeprefix(f"{s.path}: ")
     c = s.counts
-    return head + f"{c['pass']} pass, {c['warn']} warn, {c['fail']} fail — {s.title}"
+    return f"{c['pass']} pass, {c['warn']} warn, {c['fail']} fail — {s.title}"
+
+
+def _fitted_summary(s, width: int, cols: int) -> list[str]:
+    """A design's line at most ``cols`` wide: as :func:`summary_line` (its path padded to
+    ``width``) where it fits; else with only the title cut, the path unpadded if need be;
+    else the path on a line of its own and the rest under it, an error's message wrapped
+    whole (never cut), the counts kept and the title cut."""
+    from pinlib.present.terminal import wrap
+
+    word = f"{_WORDS.get(s.status, s.status.upper()):<6}"
+    tail = _tail(s)
+    for pad in (width, 0):
+        line = (word + f"{s.path:<{pad}}  " + tail).rstrip()
+        if len(line) <= cols:
+            return [line]
+    if s.error is None:
+        c = s.counts
+        essential = f"{c['pass']} pass, {c['warn']} warn, {c['fail']} fail"
+        for pad in (width, 0):
+            line = word + f"{s.path:<{pad}}  " + essential
+            if len(line) + 2 <= cols:  # room for " …" at least
+                return [(line + tail[len(essential):])[:cols - 1].rstrip() + "…"]
+        rest = "    " + tail
+        rest = rest if len(rest) <= cols else rest[:cols - 1].rstrip() + "…"
+        return _own_line(word, s.path, cols) + [rest]
+    return _own_line(word, s.path, cols) + wrap(tail, cols, "    ", "    ", break_long=False)
+
+
+def _own_line(word: str, path: str, cols: int) -> list[str]:
+    """The status word and a path too long for one line with the rest: on a line of
+    their own, broken after a ``/`` where they do not fit (a name never cut)."""
+    from pinlib.core.wrapping import NBSP
+    from pinlib.present.terminal import wrap
+
+    return wrap(word.replace(" ", NBSP) + path, cols, break_long=False)
 
 
 def _snapshot_lines(s, cols: int | None) -> list[str]:
@@ -47,17 +87,18 @@ def _snapshot_lines(s, cols: int | None) -> list[str]:
 
 def format_many(summaries, cols: int | None = None) -> str:
     """Every design's line (and snapshot changes), then the counts of designs; ``cols``:
-    characters per line (None: no limit), a design's line cut to it (its title last, so
-    the status, path and counts stay whole) and the closing line wrapped."""
+    characters per line (None: no limit), a design's line fitted to it (its title cut
+    first; the status, path, counts and an error's message stay whole,
+    :func:`_fitted_summary`) and the closing line wrapped."""
     from pinlib.present.terminal import wrap
 
     width = max(len(s.path) for s in summaries)
     out = []
     for s in summaries:
-        line = summary_line(s, width).rstrip()
-        if cols is not None and len(line) > cols:
-            line = line[:cols - 1].rstrip() + "…"
-        out.append(line)
+        if cols is None:
+            out.append(summary_line(s, width).rstrip())
+        else:
+            out += _fitted_summary(s, width, cols)
         out += _snapshot_lines(s, cols)
     counts = {k: sum(1 for s in summaries if s.status == k)
               for k in ("pass", "warn", "fail", "error")}
@@ -82,6 +123,11 @@ def format_uses(part_id: str, uses: list[dict], n_designs: int) -> str:
     return "\n".join(out) + "\n"
 
 
+def _counted(n: int, noun: str) -> str:
+    """``n`` and the noun, plural but for one: ``1 check``, ``16 margins``."""
+    return f"{n} {noun}{'' if n == 1 else 's'}"
+
+
 def _swap_lines(s, width: int) -> list[str]:
     head = f"{s.path:<{width}}  "
     if s.status == "error":
@@ -96,9 +142,10 @@ def _swap_lines(s, width: int) -> list[str]:
             out += [f"    {r['ref']}: {reason}" for reason in r["reasons"]]
         return out
     c = s.changes
-    moved = (f"{len(c.status_changes)} check(s) changed status, "
-             + (f"{len(c.margin_changes)} margin(s) moved, " if c.margin_changes else "")
-             + f"{len(c.figure_changes)} figure(s) moved")
+    moved = (f"{_counted(len(c.status_changes), 'check')} changed status, "
+             + (f"{_counted(len(c.margin_changes), 'margin')} moved, " if c.margin_changes
+                else "")
+             + f"{_counted(len(c.figure_changes), 'figure')} moved")
     written = "; written" if s.written else ""
     out = [head + f"{s.before.upper()} → {s.after.upper()}  {where}; {moved}{written}"]
     out += ["    " + ch.format() for ch in c.status_changes]
@@ -123,11 +170,13 @@ def format_swaps(summaries, parts: dict, *, write: bool, cols: int | None = None
     out.append("")
     tail = ("" if write or not n["swapped"]
             else "; add --write to edit the files that were not refused")
-    out.append(f"{len(summaries)} design(s): {n['swapped']} changed ({failing} failing after), "
+    out.append(f"{_counted(len(summaries), 'design')}: {n['swapped']} changed "
+               f"({failing} failing after), "
                f"{n['refused']} refused, {n['unused']} without the part, "
                f"{n['error']} not checked{tail}")
     if cols is not None:
         out = [w for line in out
-               for w in (wrap(line.lstrip(), cols, line[:len(line) - len(line.lstrip())])
+               for w in (wrap(line.lstrip(), cols, line[:len(line) - len(line.lstrip())],
+                              break_long=False)  # a path: never cut inside a name
                          if len(line) > cols else [line])]
     return "\n".join(out) + "\n"

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import textwrap
 
+from pinlib.core import messages as M
 from pinlib.core.labels import check_label, humanize, note_label
 from pinlib.model.result import CAUTION, BusResult, Group, margin_text
 from pinlib.present.terminal import status_word, wrap
@@ -138,7 +139,8 @@ def detail_lines(result, cols: int) -> list[str]:
                 cols)
     n = counts(result)
     out += wrap(f"status: {status_word(result.status)} — {n['pass']} pass, {n['warn']} warn, "
-                f"{n['fail']} fail (warn below {result.warn_margin:.0%} margin)", cols)
+                f"{n['fail']} fail (warn below {result.warn_margin:.0%} margin; "
+                f"{M.RATING_NO_WARN_BAND})", cols)
     for note in result.notes:
         out += wrap(f"note: {note}", cols)
     for b in result.results():

@@ -325,8 +325,37 @@ def _summary(result: DesignResult, cols: int, more: str | None, quiet: bool) -> 
     out.append("")
     out += wrap(_closing(result), cols)
     if more:  # the command kept on one line where it fits, to copy as it stands
-        out += wrap("Every figure and check: " + more.replace(" ", "\u00a0"), cols)
+        out += _command_lines("Every figure and check:", more, cols)
     return out
+
+
+def _command_lines(head: str, command: str, cols: int) -> list[str]:
+    """``head`` and a command to copy: on one line where they fit, else the command on
+    the next line, else continued as a shell reads it (a path too long for a line
+    goes on after a backslash: :func:`pinlib.core.commandtext.continued_lines`)."""
+    from pinlib.core.commandtext import continued_lines
+
+    if len(head) + 1 + len(command) <= cols:
+        return [f"{head} {command}"]
+    if len(command) + 4 <= cols:
+        return [head, "    " + command]
+    return continued_lines(head, _shell_words(command), cols, "    ", split_long=True)
+
+
+def _shell_words(command: str) -> list[str]:
+    """A command's words, split at the spaces outside single quotes (as
+    :func:`pinlib.present.terminal.shell_word` quotes a path)."""
+    words, word, quoted = [], "", False
+    for ch in command:
+        if ch == "'":
+            quoted = not quoted
+        if ch == " " and not quoted:
+            if word:
+                words.append(word)
+            word = ""
+        else:
+            word += ch
+    return words + ([word] if word else [])
 
 
 def paint(lines: list[str]) -> list[str]:

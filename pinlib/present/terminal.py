@@ -99,16 +99,18 @@ def status_word(status: str, colour: bool = False) -> str:
 
 def fitted(line: str, stream=None) -> str:
     """``line`` wrapped to the width of ``stream`` (standard output by default) when it is
-    a terminal or COLUMNS is set (:func:`table_width`), continuation lines indented;
-    whole for a file or a pipe, where a message stays one line (``file:line, field``
-    first, as tools read it)."""
+    a terminal or COLUMNS is set (:func:`table_width`), continuation lines indented, a
+    word too long for its line (a file's path) on a line of its own, whole where it fits
+    the width, else broken after a ``/``; whole for a file or a pipe, where a message
+    stays one line (``file:line, field`` first, as tools read it)."""
     cols = table_width(stream)
     if not cols or len(line) <= cols:
         return line
     # "pinlib: error: " stays with the file it names
     head = _HEAD.match(line)
     glued = line if head is None else head.group(0).replace(" ", NBSP) + line[head.end():]
-    return "\n".join(ln.replace(NBSP, " ") for ln in wrap(glued, cols))
+    # a path too long for its line goes on one of its own (core.wrapping.wrap)
+    return "\n".join(ln.replace(NBSP, " ") for ln in wrap(glued, cols, break_long=False))
 
 
 def fitted_command(head: str, words: list[str], stream=None) -> str:

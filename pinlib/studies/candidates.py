@@ -62,6 +62,7 @@ __all__ = [
     "FORMAT",
     "FIGURES",
     "FIXED_CHECKS",
+    "bus_figures",
     "Candidate",
     "Ranking",
     "positions",
@@ -78,7 +79,17 @@ FIGURES = {
     "open-drain": (("bus_capacitance", "F"), ("rise_time", "s"), ("v_ol", "V"),
                    ("pullup_resistor", "Ω")),
     "push-pull": (("max_clock", "Hz"),),
+    # a GPIO bus has no clock: the slowest far-end edge of its lines (rise or fall), the
+    # figure of "pinlib check"'s line for the bus
+    "gpio": (("worst_edge", "s"),),
 }
+
+
+def bus_figures(protocol: str) -> tuple:
+    """The figures :data:`FIGURES` shows for a bus of this protocol."""
+    if protocol in OPEN_DRAIN_PROTOCOLS:
+        return FIGURES["open-drain"]
+    return FIGURES["gpio" if protocol == "gpio" else "push-pull"]
 
 #: Checks no part in a plain position can move: the bus clock against its mode's
 #: limit, a pass-transistor translator's gate drive and the facing of static-offset
@@ -209,7 +220,7 @@ class Ranking:
     def count_text(self) -> str:
         """How the library's placeable parts divide: those that can serve the position,
         those that cannot, and those not considered; the numbers add up to the whole."""
-        rest = [f"{self.excluded} cannot: pin functions or drives"]
+        rest = [f"{self.excluded} cannot: pin functions, drives or routes"]
         if self.set_aside.get("cable"):
             rest.append(f"{self.set_aside['cable']} are cables, which stand at no position")
         if self.set_aside.get("category"):
@@ -258,8 +269,7 @@ class Ranking:
             multi = len(self.buses) > 1
             fig_cols = []
             for b in self.buses:
-                for name, unit in FIGURES["open-drain" if b["protocol"] in OPEN_DRAIN_PROTOCOLS
-                                          else "push-pull"]:
+                for name, unit in bus_figures(b["protocol"]):
                     fig_cols.append((b["bus"], name, unit, f"{short_label(name)}@{b['bus']}"
                                      if multi else short_label(name)))
             head = ["#", "part", "status", "worst", "set by"] + [c[3] for c in fig_cols]
@@ -429,7 +439,7 @@ def _summary_of(results: list[BusResult], places) -> tuple:
                 group = next(s for s in r.segments if s.id == seg)
             figs = FIGURES["open-drain"]
         else:
-            group, figs = r, FIGURES["push-pull"]
+            group, figs = r, bus_figures(bus.protocol)
         figures[r.id] = {n: FigureCell(_fig(group, n), u, _why(group, n)) for n, u in figs}
     return status, best, where, figures, sorted(margins)
 
@@ -466,12 +476,24 @@ class FigureCell(tuple):
         return cell
 
 
+def _worst_edge(bus) -> float | None:
+    """The slowest far-end edge of a push-pull bus's lines, rise or fall [s]; None when
+    no line has a finite one."""
+    got = [float(f.value) for ln in bus.lines
+           for f in (ln.figures.get("edge_rise_time"), ln.figures.get("edge_fall_time"))
+           if f is not None and isinstance(f.value, (int, float))
+           and not isinstance(f.value, bool) and math.isfinite(f.value)]
+    return max(got) if got else None
+
+
 def _why(group, name) -> str | None:
     f = group.figures.get(name)
     return None if f is None else f.reason
 
 
 def _fig(group, name):
+    if name == "worst_edge":
+        return _worst_edge(group)
     f = group.figures.get(name)
     if f is None or f.value is None or isinstance(f.value, (bool, str)):
         return None

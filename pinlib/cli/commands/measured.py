@@ -36,13 +36,21 @@ exit status: 0 the measurement agrees with the model, 1 it does not, 2 bad input
 
 
 def levels_type(text: str) -> tuple[float, float]:
-    """``"30,70"`` or ``"0.3,0.7"`` -> (0.3, 0.7): percent when a number is above 1."""
-    bits = [b.strip().rstrip("%") for b in str(text).split(",")]
+    """``"30,70"`` or ``"0.3,0.7"`` -> (0.3, 0.7): percent when a number is above 1 or
+    a ``%`` is written; a fraction beside a percentage (``"0.3,70"``) is refused."""
+    raw = [b.strip() for b in str(text).split(",")]
+    bits = [b.rstrip("%") for b in raw]
     try:
         lo, hi = (float(b) for b in bits)
     except ValueError:
         raise argparse.ArgumentTypeError(M.LEVELS_FORM + f" (got {text!r})") from None
-    if lo > 1 or hi > 1:
+    percent = any(b.endswith("%") for b in raw)
+    if not percent and max(lo, hi) > 1 and 0 < min(lo, hi) < 1:
+        raise argparse.ArgumentTypeError(
+            M.LEVELS_FORM + f" (got {text!r}); expected both in % of the rail (30,70) or "
+            "both as fractions (0.3,0.7), not one of each (write 0.5%,70% for a level "
+            "under 1 %)")
+    if percent or lo > 1 or hi > 1:
         lo, hi = lo / 100.0, hi / 100.0
     if not 0.0 <= lo < hi < 1.0:
         raise argparse.ArgumentTypeError(

@@ -79,5 +79,6 @@ def run_check(args, load) -> int:
             print(fitted(p.message))
         n = len(problems)
         verdict = "no problems" if not n else f"{n} problem{'s' if n != 1 else ''}"
-        print(f"checked {n_files} file{'s' if n_files != 1 else ''} in {scope}: {verdict}")
+        print(fitted(f"checked {n_files} file{'s' if n_files != 1 else ''} in {scope}: "
+                     f"{verdict}"))
     return 1 if problems else 0

@@ -32,12 +32,14 @@ examples:
   pinlib swap --part eeprom-i2c=eeprom-hicap 'boards/*.toml'
   pinlib swap --part eeprom-i2c=eeprom-hicap 'boards/*.toml' --write
 
-The text lists what changed: checks whose status changed, figures that moved by more
-than the threshold (5 % unless --threshold) and the part values behind them; --detail
-prints every figure before and after (those that moved marked *).
+The text lists what changed: checks whose status changed, margins and figures that
+moved by more than the threshold (5 % unless --threshold) and the part values behind
+them; --detail prints every figure before and after (those that moved marked *).
 A part that cannot serve the position (a pin function the old part served on that bus
-is missing, or its drive is wrong for the role, e.g. a push-pull SDA, a peripheral's
-CIPO that is not push-pull) is refused with the reason and the file is not touched.
+is missing, its drive is wrong for the role, e.g. a push-pull SDA, a peripheral's CIPO
+that is not push-pull, or a pin the old part lacks would sit on a routed line whose
+route does not reach the position) is refused with the reason and the file is not
+touched.
 
 exit status: 0 the swapped design passes or warns, 1 a check fails, 2 a refused
 substitution or a design/library that is not valid.
@@ -401,6 +403,26 @@ def parse_part_pairs(items) -> dict[str, str]:
 _PAIR = re.compile(r"^\s*([a-z0-9][a-z0-9-]*)\s*=\s*([a-z0-9][a-z0-9-]*)\s*$")
 
 
+def _known_olds(parts: dict, summaries, library_folders) -> None:
+    """Refuse an OLD part id that no loaded design's library holds (a typo would read as
+    "no position to change" in every design), naming the closest ids, as ``pinlib parts
+    used-by`` does."""
+    from pinlib.core.errors import InputError
+    from pinlib.library.folders import team_folders_hint
+
+    loaded = [s.design for s in summaries if s.design is not None]
+    if not loaded:
+        return  # each design's own error says why
+    for old in parts:
+        if any(old in d.library.files for d in loaded):
+            continue
+        near = loaded[0].library.closest(old)
+        hints = (["closest: " + ", ".join(near)] if near else []) + [
+            team_folders_hint(library_folders, designs=len(loaded))]
+        raise InputError(M.NOT_A_LIBRARY_PART, field="--part", value=old,
+                         hint="; ".join(hints))
+
+
 def _run_many(args) -> int:
     """``--part OLD=NEW DESIGN...``: each design on its own; refused designs are named with
     the reasons at each position and (with --write) left as they are."""
@@ -418,6 +440,7 @@ def _run_many(args) -> int:
                              hint="give designs after --part OLD=NEW, or REF=PART without it")
     summaries = [swap_in_design(p, parts, args.library, args.threshold)
                  for p in expand_designs(items)]
+    _known_olds(parts, summaries, args.library)
     for s in summaries:
         if s.status == "swapped" and args.write:
             try:

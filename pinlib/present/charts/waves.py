@@ -44,7 +44,8 @@ if TYPE_CHECKING:  # pragma: no cover - typing only
 
 
 def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
-              title: str | None = "Receiver waveforms", subtitle: str | None = None,
+              vdd_name: str = "VDD", title: str | None = "Receiver waveforms",
+              subtitle: str | None = None,
               band_label: str = "between VIL and VIH", threshold_label: str = "VIL / VIH",
               width: int = _WIDTH, height: int = _HEIGHT,
               groups: Mapping[str, str] | None = None) -> alt.LayerChart:
@@ -63,6 +64,9 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
         Receiver's lowest input high level. [V]
     vdd : float, optional
         Supply, drawn as a dotted line when given. [V]
+    vdd_name : str, optional
+        Its legend entry, before its value: ``"VDD"``, or ``"high level"`` where the
+        line settles below the supply (an open-drain line's pull-up less leakage). [1]
     title, subtitle : str, optional
         Chart title and a line below it (each wrapped to the width). [1]
     band_label, threshold_label : str, optional
@@ -113,7 +117,7 @@ def waveforms(t, traces: Mapping[str, object], *, v_il, v_ih, vdd=None,
 
     entry = {name: str((groups or {}).get(name, name)) for name in vs}
     names = list(dict.fromkeys(entry.values()))  # the legend's entries, in trace order
-    vdd_label = None if top is None else f"VDD {format_si(top, 'V')}"
+    vdd_label = None if top is None else f"{vdd_name} {format_si(top, 'V')}"
     fixed = [band_label, threshold_label] + ([vdd_label] if vdd_label else [])
     fixed_colours = [UNDEFINED, LIMIT] + ([INK] if vdd_label else [])
     fixed_dashes = [[1, 0], [6, 3]] + ([[2, 3]] if vdd_label else [])

@@ -118,6 +118,10 @@ class WaveformData:
         so that the two edges at one receiver share its colour and dash and the legend
         names each receiver once (:func:`pinlib.present.charts.waveforms`); empty
         otherwise (each trace its own entry). [1]
+    high_name : str
+        What ``vdd`` is, for the chart's legend and caption: ``"VDD"``, a push-pull
+        driver's supply; ``"high level"`` on a line an open-drain driver pulls low, whose
+        pull-up's rail less the pins' leakage through it is no supply. [1]
     """
 
     bus: str
@@ -135,6 +139,7 @@ class WaveformData:
     si_corner: str = "slow"
     checks_at_worst: bool = False
     groups: dict = field(default_factory=dict)
+    high_name: str = "VDD"
 
 
 # =========================================================================== push-pull
@@ -305,7 +310,8 @@ def _board_note(bus: Bus) -> str | None:
     specs = parameter_specs(bus)
     if not specs:
         return None
-    what = ", ".join(dict.fromkeys(kind for _, kind, *_ in specs))
+    what = ", ".join(dict.fromkeys("pull-up" if kind == "pullup" else kind
+                                   for _, kind, *_ in specs))
     return (f"the traces are the nominal board; the bus's checks are at the worst corner "
             f"of its tolerances ({what})")
 
@@ -411,5 +417,6 @@ def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None =
     # fall in one colour and dash (a route holds up to 64 receivers)
     groups = ({n: n.split(" ", 1)[1] for n in traces}
               if la.net is not None and receiver is None else {})
+    high = "high level" if case.driver.pin.drive == "open-drain" else "VDD"
     return WaveformData(bus.id, signal, ref, t, traces, v_il, v_ih, vdd, rx, over, under,
-                        notes, "fast" if fast else "slow", board is not None, groups)
+                        notes, "fast" if fast else "slow", board is not None, groups, high)

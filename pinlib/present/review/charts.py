@@ -101,13 +101,16 @@ def _push_pull_charts(bus, design, result: BusResult, keys, charts):
                         f"{ref}") + (", with and without the series resistor"
                                      if e.rs and not routed else "")
                        + f". Shaded: the band between VIL {_f(w.v_il, 'V')} and VIH "
-                       f"{_f(w.v_ih, 'V')}; dotted: VDD {_f(w.vdd, 'V')}. {_sentence(over)}."
+                       f"{_f(w.v_ih, 'V')}; dotted: {w.high_name} {_f(w.vdd, 'V')}"
+                       + (" (the pull-up's rail less the pins' leakage through it)"
+                          if w.high_name != "VDD" else "") + f". {_sentence(over)}."
                        + ("".join(f" {_sentence(n)}." for n in w.notes)))
             charts[place].append(_draw(
                 keys(bus.id, sig, ref, "waveforms"), "waveforms", title, caption,
                 lambda w=w, title=title, rx=rx: ch.waveforms(
-                    w.t, w.traces, v_il=w.v_il, v_ih=w.v_ih, vdd=w.vdd, title=title,
-                    subtitle=f"at {rx}", groups=w.groups)))
+                    w.t, w.traces, v_il=w.v_il, v_ih=w.v_ih, vdd=w.vdd,
+                    vdd_name=w.high_name, title=title, subtitle=f"at {rx}",
+                    groups=w.groups)))
     sa = plotdata.workings(bus, design, result) if bus.protocol == "spi" else None
     if sa is not None and sa.terms:
         _budget_chart(bus, design, result, keys, charts)

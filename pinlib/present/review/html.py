@@ -130,7 +130,8 @@ class _Html:
         self.w(f'<p class="meta">Overall: {_badge(res.status)} the design '
                f"{_e(_STATUS_WORD[res.status])} — {counts['pass']} checks pass, "
                f"{counts['warn']} warn, {counts['fail']} fail (warning below "
-               f"{res.warn_margin:.0%} margin).</p>", "</header>")
+               f"{res.warn_margin:.0%} margin; {_e(M.RATING_NO_WARN_BAND)}).</p>",
+               "</header>")
         self.nav()
         self.w("<main>")
         self.summary()

@@ -39,13 +39,17 @@ from pinlib.present.values import figure_cells
 # Every user-written text (titles, ids, descriptions, sources, part values, paths) goes
 # through _mt: one line (newlines and runs of spaces become one space), the characters
 # that start inline Markdown escaped (emphasis, code, links and images, tables,
-# strikethrough), the HTML ones as entities, and a block marker at its start (a heading,
-# a list, a quote) made plain.  It cannot end a table, open a code block or add an image.
-_MD_INLINE = str.maketrans({**{c: "\\" + c for c in "\\`*_[]|~"},
-                            "<": "&lt;", ">": "&gt;", "&": "&amp;"})
-# a heading (# x), a bullet (- x, + x), a rule or heading underline (---, ===), a
-# numbered item (1. x): each only with the space or line end that makes it one
-_MD_LINE_START = re.compile(r"^(?:(#{1,6}|[+-])(?=\s|$)|([=-])(?=[=\-\s]*$)"
+# strikethrough), a "<" that could open HTML or an autolink (a URI's, an e-mail
+# address's) and an "&" that could start a character reference as entities (any other
+# "<", ">" or "&" reads as itself: "Johnson & Graham", "<= 0.01", "-> 0 V"), and a block
+# marker at its start (a heading, a list, a quote) made plain.  It cannot end a table,
+# open a code block or add an image.
+_MD_INLINE = str.maketrans({c: "\\" + c for c in "\\`*_[]|~"})
+_MD_HTML = re.compile(r"<(?=[A-Za-z/!?]|[^\s<>]*@[^\s<>]*>)|&(?=#?[A-Za-z0-9]+;)")
+_MD_ENTITY = {"<": "&lt;", "&": "&amp;"}
+# a heading (# x), a bullet (- x, + x), a quote (>), a rule or heading underline (---,
+# ===), a numbered item (1. x): each only with the space or line end that makes it one
+_MD_LINE_START = re.compile(r"^(?:(#{1,6}|[+-])(?=\s|$)|>|([=-])(?=[=\-\s]*$)"
                             r"|(\d{1,9})([.)])(?=\s|$))")
 
 
@@ -55,8 +59,7 @@ TEXT_WIDTH = 80
 
 def _mt(text) -> str:
     """User text for Markdown: one line in which nothing is markup (see above)."""
-    s = " ".join(str(text).split()).translate(_MD_INLINE)
-    return _MD_LINE_START.sub(_plain_start, s, count=1)
+    return _MD_LINE_START.sub(_plain_start, _m(text), count=1)
 
 
 def _plain_start(m: re.Match) -> str:
@@ -66,8 +69,11 @@ def _plain_start(m: re.Match) -> str:
 
 
 def _m(text) -> str:
-    """Text for a Markdown table cell (``|`` is escaped by _mt as well)."""
-    return _mt(text)
+    """Text for a Markdown table cell, or for a line after its start: inline markup
+    escaped as :func:`_mt` does (``|`` too), its first character as written (a block
+    marker means nothing in a cell or in the middle of a line: ``> +999 %`` reads so)."""
+    s = " ".join(str(text).split()).translate(_MD_INLINE)
+    return _MD_HTML.sub(lambda m: _MD_ENTITY[m.group(0)], s)
 
 
 def _title(text) -> str:
@@ -162,7 +168,7 @@ class _Markdown:
         self.w(*_wrapped(
             f"**Overall: {_MARK[res.status]}** — the design {_STATUS_WORD[res.status]}: "
             f"{counts['pass']} checks pass, {counts['warn']} warn, {counts['fail']} fail "
-            f"(warning below {res.warn_margin:.0%} margin)."), "")
+            f"(warning below {res.warn_margin:.0%} margin; {M.RATING_NO_WARN_BAND})."), "")
         self.w("## Summary", "")
         rows = []
         for b in res.results():
@@ -248,8 +254,20 @@ class _Markdown:
         for line in _mc_summary(self.r.mc):
             self.w(*_wrapped(_mt(line)), "")
         if self.r.mc_entries:
-            self.w(*_table(list(_MC_HEAD), [[_m(c) for c in _mc_cells(r)]
-                                            for r in self.r.mc_entries]))
+            # the numbers in the table, each limit's source once under it, cited by
+            # number (a row that carried its own in full was up to 300 characters)
+            cite: dict[str, int] = {}
+            rows = []
+            for r in self.r.mc_entries:
+                *cells, src = _mc_cells(r)
+                ref = f"[{cite.setdefault(src, len(cite) + 1)}]" if src else "—"
+                rows.append([_m(c) for c in cells] + [ref])
+            self.w(*_table([*_MC_HEAD[:-1], "Source"], rows))
+            if cite:
+                self.w("Sources of the limits:", "")
+                for src, n in cite.items():
+                    self.w(*_wrapped(_mt(src), f"- [{n}] ", "  "))
+                self.w("")
         for chart in self.r.mc_charts:
             self.chart(chart)
 

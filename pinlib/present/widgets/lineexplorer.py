@@ -386,6 +386,7 @@ class LineExplorer(_Panel):
             return
         self.waves.draw(lambda: charts.spec(
             charts.waveforms, w.t, w.traces, v_il=w.v_il, v_ih=w.v_ih, vdd=w.vdd,
+            vdd_name=w.high_name,
             title=("Receiver waveforms" if self.placement.value == "daisy chain"
                    else "Far-end waveforms"),
             subtitle="at " + ", ".join(w.receivers), groups=w.groups))

@@ -19,7 +19,7 @@ import numpy as np
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.labels import check_label, figure_label, short_label
-from pinlib.core.protocols import is_open_drain, protocol
+from pinlib.core.protocols import is_open_drain
 from pinlib.core.quantity import format_si
 from pinlib.engines.dispatch import check_design
 from pinlib.model.design import load_design
@@ -505,14 +505,13 @@ class SwapExplorer(_Panel):
     def _ranking_html(r, bus: str | None = None, top: int = TOP) -> str:
         """The best ``top`` candidates, with the figures of one bus of the position (the
         bus charted; the first when it is not one of the ranking's)."""
-        from pinlib.studies.candidates import FIGURES, where_text
+        from pinlib.studies.candidates import bus_figures, where_text
 
         rows_of = {b["bus"]: b for b in r.buses}
         shown = rows_of.get(bus) or (r.buses[0] if r.buses else None)
         cols = []
         if shown is not None:
-            family = protocol(shown["protocol"]).family
-            cols = [(shown["bus"], name, unit) for name, unit in FIGURES[family]]
+            cols = [(shown["bus"], name, unit) for name, unit in bus_figures(shown["protocol"])]
         head = ["#", "part", "status", "worst margin", "set by"] + [
             short_label(n) for _, n, _ in cols]
         rows = []

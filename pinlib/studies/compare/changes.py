@@ -621,12 +621,18 @@ def compare(old_snapshot: dict, new_snapshot: dict, *, threshold: float = DEFAUL
         ol, nl = old_snapshot.get("library") or {}, new_snapshot.get("library") or {}
         if ol.get("folders") != nl.get("folders"):
             cl.notes.append("library folders differ: "
-                            f"{ol.get('folders')} {_ARROW} {nl.get('folders')}")
+                            f"{_words(ol.get('folders'))} {_ARROW} {_words(nl.get('folders'))}")
         if ol.get("overrides") != nl.get("overrides"):
             cl.notes.append("built-in parts overridden by team parts differ: "
-                            f"{sorted(ol.get('overrides') or {})} {_ARROW} "
-                            f"{sorted(nl.get('overrides') or {})}")
+                            f"{_words(sorted(ol.get('overrides') or {}))} {_ARROW} "
+                            f"{_words(sorted(nl.get('overrides') or {}))}")
     return cl
+
+
+def _words(items) -> str:
+    """A list of names as a reader writes it (``builtin, team``; ``(none)``), not as
+    Python prints it."""
+    return ", ".join(str(x) for x in items or ()) or "(none)"
 
 
 def compare_with_snapshot(design, result, threshold: float = DEFAULT_THRESHOLD, *,

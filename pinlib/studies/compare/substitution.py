@@ -8,6 +8,7 @@ from dataclasses import replace
 
 from pinlib.core import messages as M
 from pinlib.core import protocols
+from pinlib.core.errors import PinlibError
 from pinlib.library.schema import Part
 
 #: Pin functions each protocol puts on a bus.
@@ -151,7 +152,10 @@ def can_serve(old_part: Part, new_part: Part, device, bus) -> list[str]:
       bridging part on an open-drain bus is open-drain or passive ("input") on each
       side, one on an SPI bus keeps each channel's direction; a GPIO pin keeps the old
       pin's drive;
-    * a bridging part is replaced by a bridging part, and a plain part by a plain one.
+    * a bridging part is replaced by a bridging part, and a plain part by a plain one;
+    * on a push-pull bus, a pin the new part has and the old part lacks does not put it
+      on a routed line whose ``route`` does not reach the device (the design would not
+      load: every device on a routed line is one of its points).
 
     A drive rule the old part itself breaks is not held against the new part: the
     position is what the design already accepted.  Electrical fitness (capacitance,
@@ -171,7 +175,8 @@ def can_serve(old_part: Part, new_part: Part, device, bus) -> list[str]:
     protocol = bus.protocol
 
     if protocol == "gpio":
-        return _can_serve_gpio(old_part, new_part, device, bus)
+        return _can_serve_gpio(old_part, new_part, device, bus) + _off_route(new_part,
+                                                                               device, bus)
 
     for function in PROTOCOL_FUNCTIONS.get(protocol, ()):
         got_old = old_part.pin_for(function, side)
@@ -208,11 +213,45 @@ def can_serve(old_part: Part, new_part: Part, device, bus) -> list[str]:
         if new_pin.drive not in allowed and old_pin.drive in allowed:
             reasons.append(f"{new_part.id} pin '{new_name}' ({function}) is {new_pin.drive}, "
                            f"the position needs {' or '.join(sorted(allowed))}: {why}")
+    return reasons + _off_route(new_part, device, bus)
+
+
+def _off_route(new_part: Part, device, bus) -> list[str]:
+    """The routed lines of a push-pull bus that the new part would have a pin on and the
+    old part has none on, whose route does not reach the device: every device with a pin
+    on a routed line is one of its points, so the swapped design would not load."""
+    from pinlib.model.design.route import gpio_pin, on_line
+
+    if bus.protocol not in protocols.PUSH_PULL_PROTOCOLS:
+        return []
+    new_dev = replace(device, part=new_part, part_id=new_part.id)
+    n_lines = len(bus.lines)
+    reasons = []
+    for signal, line in bus.lines.items():
+        if not line.route or any(device.ref in pair for pair in line.route):
+            continue
+        if on_line(device, bus.protocol, signal, n_lines):
+            continue  # the design placed it so: not the new part's doing
+        if not on_line(new_dev, bus.protocol, signal, n_lines):
+            continue
+        if bus.protocol == "spi":
+            function = protocols.SIGNAL_FUNCTION[signal]
+            name = new_dev.part.pin_for(function, new_dev.part_side)[0]
+            pin = f"pin '{name}' ({function})"
+        else:
+            try:
+                got = gpio_pin(new_dev, signal, n_lines)
+            except PinlibError:
+                got = None
+            pin = f"pin '{got[0]}'" if got else "pin"
+        reasons.append(f"the {new_part.id} {pin} would be on line {signal} of bus {bus.id}, "
+                       f"whose route does not reach {device.ref} (every device with a pin on "
+                       f"a routed line is one of its points): add a stretch to {device.ref} "
+                       f"in lines.{signal}.route, or choose a part without that pin")
     return reasons
 
 
 def _can_serve_gpio(old_part: Part, new_part: Part, device, bus) -> list[str]:
-    from pinlib.core.errors import PinlibError
     from pinlib.engines.pushpull import gpio_pin
 
     reasons = []

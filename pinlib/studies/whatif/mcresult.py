@@ -222,8 +222,10 @@ class McResult:
                 # a rule of thumb's check warns below its limit: 100 % passing beside a
                 # margin of -89 % says so, or it reads as a contradiction
                 warned = f"warns on {c.warns}; " if c.warns else ""
-                lines.append(f"    {c.label:<{w}}  {_pct(c.passes):<34} "
-                             f"min {_fmt_margin(_low(c), c.margin_unit):>8}  "
+                # "min" beside its margin (one space: a wrapped row keeps them together),
+                # the pair right-aligned so the margins line up
+                low = "min " + _fmt_margin(_low(c), c.margin_unit)
+                lines.append(f"    {c.label:<{w}}  {_pct(c.passes):<34} {low:>12}  "
                              f"{warned}{sens}")
             if len(shown) < len(rows):
                 more = len(rows) - len(shown)
