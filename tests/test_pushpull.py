@@ -1064,10 +1064,8 @@ series_resistor = "auto"
     assert not ok.fix
 
 
-def test_a_high_level_below_vih_across_rails_says_to_shift_the_level(tmp_path):
-    # a 1.8 V output into a 3.3 V part's input (invented, built-in classes): VOH 1.35 V
-    # against VIH 2.31 V fails with a fix that names the cause, the two rails
-    d = _builtin_design(tmp_path, """[[bus]]
+#: A 1.8 V output into a 3.3 V part's input on a GPIO line (invented, built-in classes).
+_CROSS_RAIL_IRQ = """[[bus]]
 id = "irq"
 protocol = "gpio"
 supply = "3.3 V"
@@ -1076,7 +1074,13 @@ devices = [
   { ref = "U1", part = "mcu-3v3", pin = "cipo" },
 ]
 lines.irq = { length = "5 cm", capacitance = "1 pF/cm" }
-""")
+"""
+
+
+def test_a_high_level_below_vih_across_rails_says_to_shift_the_level(tmp_path):
+    # a 1.8 V output into a 3.3 V part's input (invented, built-in classes): VOH 1.35 V
+    # against VIH 2.31 V fails with a fix that names the cause, the two rails
+    d = _builtin_design(tmp_path, _CROSS_RAIL_IRQ)
     (ln,) = evaluate_bus(d.bus("irq"), d).lines
     c = ln.check("level-high")
     assert c.status == "fail"
@@ -1089,16 +1093,7 @@ def test_a_line_inside_the_receivers_rails_shows_no_negative_overshoot(tmp_path)
     # 1.5 V below the receiver's supply, and its low level sits above ground: the checks'
     # values are excursions beyond the rails, so 0 V each and a margin of exactly 100 %,
     # with the extremes in the message (it read "-1.5 V" and margins above 100 %)
-    d = _builtin_design(tmp_path, """[[bus]]
-id = "irq"
-protocol = "gpio"
-supply = "3.3 V"
-devices = [
-  { ref = "U3", part = "mcu-1v8", role = "controller", pin = "cs", supply = "1.8 V" },
-  { ref = "U1", part = "mcu-3v3", pin = "cipo" },
-]
-lines.irq = { length = "5 cm", capacitance = "1 pF/cm" }
-""")
+    d = _builtin_design(tmp_path, _CROSS_RAIL_IRQ)
     (ln,) = evaluate_bus(d.bus("irq"), d).lines
     over = next(c for c in ln.checks if c.id == "overshoot" and c.subject == "U1")
     under = next(c for c in ln.checks if c.id == "undershoot" and c.subject == "U1")
