@@ -24,6 +24,8 @@ __all__ = [
     "SIGNAL_FUNCTION",
     "protocol",
     "is_open_drain",
+    "SPI_MODE_NUMBERS",
+    "spi_modes_in_common",
 ]
 
 #: The two families: a wired-AND line with pull-ups, or lines driven both ways.
@@ -107,6 +109,19 @@ def protocol(name: str) -> Protocol:
     """The protocol called ``name`` (a ``KeyError`` for one that does not exist: the
     design loader admits only :data:`NAMES`)."""
     return PROTOCOLS[name]
+
+
+#: The SPI clock modes, CPOL·2 + CPHA.
+SPI_MODE_NUMBERS = (0, 1, 2, 3)
+
+
+def spi_modes_in_common(mode_lists) -> tuple[int, ...]:
+    """The SPI modes in every one of ``mode_lists`` (each the modes a part states), in
+    order; all four for no list."""
+    common = set(SPI_MODE_NUMBERS)
+    for modes in mode_lists:
+        common &= set(modes)
+    return tuple(sorted(common))
 
 
 def is_open_drain(name: str) -> bool:

@@ -80,11 +80,10 @@ def _serves(part, proto) -> list[str]:
 
 def _spi_mode_line(parts) -> str:
     """``spi_mode = N``: the lowest mode every part that states its modes works in (0
-    when none states any), with a comment saying whose modes chose it or that they share
-    none."""
-    stated = [(p.id, tuple(p.timing.spi_modes)) for p in parts
-              if p.timing.spi_modes is not None]
-    common = sorted(set.intersection({0, 1, 2, 3}, *(set(m) for _, m in stated)))
+    when none states any), with a comment naming the modes they allow or saying they
+    share none."""
+    stated = [p.timing.spi_modes for p in parts if p.timing.spi_modes is not None]
+    common = protocols.spi_modes_in_common(stated)
     if not stated:
         return _noted("spi_mode = 0", "CPOL/CPHA of the peripherals")
     if not common:

@@ -13,10 +13,11 @@ it).
 from __future__ import annotations
 
 from pinlib.core.labels import and_list
+from pinlib.core.protocols import spi_modes_in_common
 from pinlib.model.design import Bus
 from pinlib.model.result import Check, check_true
 
-__all__ = ["ModeLimit", "mode_limits", "mode_checks", "common_modes", "modes_text"]
+__all__ = ["ModeLimit", "mode_limits", "mode_checks", "modes_text"]
 
 #: (ref, the modes its part states, the source of that list)
 ModeLimit = tuple[str, tuple[int, ...], str]
@@ -47,18 +48,10 @@ def mode_limits(devices) -> tuple[list[ModeLimit], list[str]]:
     return limits, silent
 
 
-def common_modes(limits: list[ModeLimit]) -> tuple[int, ...]:
-    """The modes every part that states its modes works in (all four when none does)."""
-    common = {0, 1, 2, 3}
-    for _, modes, _ in limits:
-        common &= set(modes)
-    return tuple(sorted(common))
-
-
 def mode_checks(bus: Bus, limits: list[ModeLimit]) -> list[Check]:
     """One ``spi-mode`` check per device that states its modes (subject: its ref)."""
     mode = int(bus.spi_mode)
-    common = common_modes(limits)
+    common = spi_modes_in_common(modes for _, modes, _ in limits)
     if common:
         fix = (f"set spi_mode to {' or '.join(str(m) for m in common)}, a mode every part "
                "on the bus states")
