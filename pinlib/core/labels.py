@@ -129,10 +129,12 @@ _WORDS = {
 _LINES = ("sda", "scl")
 
 
-def and_list(words) -> str:
-    """``["U2", "U3", "U4"]`` -> ``"U2, U3 and U4"``; one word alone; "" for none."""
+def and_list(words, conjunction: str = "and") -> str:
+    """``["U2", "U3", "U4"]`` -> ``"U2, U3 and U4"`` (or ``conjunction`` in place of
+    "and"); one word alone; "" for none."""
     words = [str(w) for w in words]
-    return ", ".join(words[:-1]) + f" and {words[-1]}" if len(words) > 1 else "".join(words)
+    return (", ".join(words[:-1]) + f" {conjunction} {words[-1]}" if len(words) > 1
+            else "".join(words))
 
 
 def humanize(ident: str) -> str:

@@ -21,6 +21,7 @@ from __future__ import annotations
 import json
 
 from pinlib.core import protocols
+from pinlib.core.labels import and_list
 from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import toml_key
 from pinlib.core.valueclass import value_class
@@ -88,9 +89,8 @@ def _spi_mode_line(parts) -> str:
         return _noted("spi_mode = 0", "CPOL/CPHA of the peripherals")
     if not common:
         return _noted("spi_mode = 0", "the parts share no SPI mode: see pinlib check")
-    allowed = ", ".join(map(str, common[:-1])) + " or " if len(common) > 1 else ""
     return _noted(f"spi_mode = {common[0]}",
-                  f"the parts' SPI modes allow {allowed}{common[-1]}")
+                  f"the parts' SPI modes allow {and_list(common, 'or')}")
 
 
 def _drives_clock(part, proto) -> bool:

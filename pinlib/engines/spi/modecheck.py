@@ -53,8 +53,8 @@ def mode_checks(bus: Bus, limits: list[ModeLimit]) -> list[Check]:
     mode = int(bus.spi_mode)
     common = spi_modes_in_common(modes for _, modes, _ in limits)
     if common:
-        fix = (f"set spi_mode to {' or '.join(str(m) for m in common)}, a mode every part "
-               "on the bus states")
+        fix = (f"set spi_mode to {and_list(common, 'or')}, a mode every part on the bus "
+               "states")
     else:
         each = "; ".join(f"{ref} {modes_text(m)}" for ref, m, _ in limits)
         fix = (f"no mode suits every part ({each}): a controller that changes mode per "
