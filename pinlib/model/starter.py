@@ -63,8 +63,7 @@ def _noted(code: str, note: str) -> str:
 
 def _choices(names) -> str:
     """``("a", "b", "c")`` -> ``'"a", "b" or "c"'``."""
-    quoted = [f'"{n}"' for n in names]
-    return ", ".join(quoted[:-1]) + " or " + quoted[-1] if len(quoted) > 1 else quoted[0]
+    return and_list((f'"{n}"' for n in names), "or")
 
 
 def _toml_string(text: str) -> str:

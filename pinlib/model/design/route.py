@@ -8,6 +8,7 @@ from collections.abc import Callable, Sequence
 
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError
+from pinlib.core.labels import and_list
 from pinlib.core.protocols import SIGNAL_FUNCTION
 from pinlib.core.worklimits import MAX_ROUTE_STRETCHES
 from pinlib.library.schema import Pin
@@ -106,7 +107,7 @@ def _loop_hint(points: Sequence[tuple[str, str]], i: int) -> str:
         return (f"route[{path[0]}] already joins {a} and {b} (the same stretch written "
                 f"twice?); {fix}")
     way = [f"route[{k}] ({points[k][0]} to {points[k][1]})" for k in path]
-    return f"{a} and {b} are already joined by {', '.join(way[:-1])} and {way[-1]}; {fix}"
+    return f"{a} and {b} are already joined by {and_list(way)}; {fix}"
 
 
 def _check_tree(points: Sequence[tuple[str, str]], loc, err) -> None:
