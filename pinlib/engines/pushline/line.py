@@ -33,6 +33,7 @@ from pinlib.engines.pushline.rules import (
 )
 from pinlib.engines.pushline.sections import line_model, stretches_of
 from pinlib.engines.pushline.sichecks import _si_checks
+from pinlib.engines.pushline.sink import sink_checks
 from pinlib.engines.pushline.termination import _solve_cases, _termination_check
 from pinlib.engines.pushline.waves import MAX_TIME_STEPS, _TooManySteps
 from pinlib.engines.readout import explained
@@ -508,6 +509,11 @@ def _add_checks(a: LineAnalysis, res: LineResult, clock, clock_line, warn_margin
                 "system (losses, skew between lines) outside pinlib")))
     if a.line.series_resistor == "auto":
         res.add(_termination_check(a))
+    pullups = {d.ref: open_drain_pullup(a.line, a.loads, d) for d in a.drivers}
+    sinks, notes = sink_checks(a, pullups, warn_margin)
+    for c in sinks:
+        res.add(c)
+    res.notes.extend(notes)
     for c in a.cases.values():
         for w in (c.rise, c.fall):
             if not w.settled:

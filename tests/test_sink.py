@@ -1,0 +1,116 @@
+"""sink-current on GPIO lines: a driver holding a pulled-up line low, against the sink
+current its part rates its low level at (pinlib/engines/pushline/sink.py)."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+from pinlib.engines.dispatch import evaluate_bus
+from pinlib.model.design import load_design
+
+DATA = Path(__file__).parent / "data" / "pushpull"
+VDD = 3.3  # invented test data: the bus supply
+
+
+def _bus(tmp_path, devices: str, line: str, library: bool = True):
+    lib = f'library = ["{DATA.as_posix()}"]\n' if library else ""
+    path = tmp_path / "d.toml"
+    path.write_text(f"""format = "pinlib.design/1"
+title = "sink test (invented)"
+{lib}
+[[bus]]
+id = "g"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [{devices}]
+lines.g = {{ {line} }}
+""", encoding="utf-8")
+    d = load_design(path)
+    return evaluate_bus(d.bus("g"), d)
+
+
+TRACE = 'length = "5 cm", capacitance = "1 pF/cm", delay = "60 ps/cm"'
+PP = ('{ ref = "U1", part = "pp-ctrl", role = "controller", pin = "cs" }, '
+      '{ ref = "U2", part = "pp-periph", pin = "cs" }')
+
+
+def _sink(res):
+    (ln,) = res.lines
+    return ln, [c for c in ln.checks if c.id == "sink-current"]
+
+
+def test_push_pull_driver_against_a_strong_pullup_fails(tmp_path):
+    ln, (chk,) = _sink(_bus(tmp_path, PP, TRACE + ', pullup = "1 kΩ"'))
+    # derived: V / (Rp + v_ol/i_ol) with pp-ctrl's cs VOL 0.2 V at 1 mA (invented test
+    # part) and the pull-up at its default -1 % corner (docs/formats/design.md)
+    rp = 1e3 * 0.99
+    assert chk.value == pytest.approx(VDD / (rp + 0.2 / 1e-3), rel=1e-9)
+    assert chk.limit == pytest.approx(1e-3) and chk.unit == "A"
+    assert chk.status == "fail" and chk.subject == "U1"
+    assert "pp-ctrl" in chk.source and "i_ol" in chk.source
+    # derived: (V - v_ol) / i_ol = 3.1 kΩ, the smallest pull-up whose current is i_ol
+    assert "3.1 kΩ" in chk.fix
+    assert ln.status == "fail"
+
+
+def test_push_pull_driver_against_a_weak_pullup_passes(tmp_path):
+    _, (chk,) = _sink(_bus(tmp_path, PP, TRACE + ', pullup = "10 kΩ"'))
+    # derived: 3.3 V / (9.9 kΩ + 200 Ω) = 0.327 mA against 1 mA
+    assert chk.value == pytest.approx(VDD / (9.9e3 + 200.0), rel=1e-9)
+    assert chk.status == "pass" and chk.fix is None
+
+
+def test_the_boundary_is_the_rated_point(tmp_path):
+    # derived: at Rp = (V - v_ol)/i_ol the current is i_ol exactly (3.1 kΩ at nominal,
+    # so 3.1 kΩ / 0.99 keeps it there at the -1 % corner)
+    _, (chk,) = _sink(_bus(tmp_path, PP, TRACE + f', pullup = "{3.1e3 / 0.99} Ω"'))
+    assert chk.value == pytest.approx(1e-3, rel=1e-9)
+    assert chk.status != "fail"
+
+
+def test_no_pullup_no_check(tmp_path):
+    ln, got = _sink(_bus(tmp_path, PP, TRACE))
+    assert got == [] and not any("sinks up to" in n for n in ln.notes)
+
+
+def test_series_resistor_counts_in_the_current(tmp_path):
+    _, (chk,) = _sink(_bus(tmp_path, PP, TRACE + ', pullup = "1 kΩ", series_resistor = "100 Ω"'))
+    # derived: the resistor at the driver is in the loop: 3.3 / (990 + 100 + 200)
+    assert chk.value == pytest.approx(VDD / (990.0 + 100.0 + 200.0), rel=1e-9)
+    assert "series resistor 100 Ω" in chk.message
+
+
+def test_a_driver_without_i_ol_gets_a_note(tmp_path):
+    # pp-ctrl's reset pin states r_out only (invented test part)
+    devs = ('{ ref = "U1", part = "pp-ctrl", role = "controller", pin = "reset" }, '
+            '{ ref = "U2", part = "pp-periph", pin = "irq" }')
+    ln, got = _sink(_bus(tmp_path, devs, TRACE + ', pullup = "1 kΩ"'))
+    # U2's irq is an open-drain output with VOL 0.4 V at 4 mA: it has its check
+    assert [c.subject for c in got] == ["U2"]
+    (note,) = [n for n in ln.notes if "sinks up to" in n]
+    # derived: with no sink stated, the bound is the pull-up alone: 3.3 V / 1 kΩ (nominal)
+    assert "3.3 mA" in note and "U1.reset" in note and "v_ol at i_ol" in note
+
+
+def test_open_drain_reset_against_a_strong_pullup(tmp_path):
+    # the built-in supervisor class: VOL 0.3 V at 1 mA (typical of the class, common
+    # practice); a 1 kΩ pull-up draws 3.3 / (990 + 300) = 2.56 mA at the -1 % corner
+    devs = ('{ ref = "U2", part = "supervisor-od", role = "controller", pin = "reset" }, '
+            '{ ref = "U1", part = "mcu-3v3", pin = "reset" }')
+    _, (chk,) = _sink(_bus(tmp_path, devs, TRACE + ', pullup = "1 kΩ"', library=False))
+    assert chk.value == pytest.approx(VDD / (990.0 + 300.0), rel=1e-9)
+    assert chk.status == "fail" and "supervisor-od" in chk.source
+    _, (ok,) = _sink(_bus(tmp_path, devs, TRACE + ', pullup = "10 kΩ"', library=False))
+    assert ok.status == "pass"
+
+
+def test_built_in_gpio_output_against_an_led_sized_pullup(tmp_path):
+    # mcu-3v3's gpio_out: VOL 0.4 V at 8 mA (typical of the class); 330 Ω draws
+    # 3.3 / (326.7 + 50) = 8.76 mA at the -1 % corner: beyond its rating
+    devs = ('{ ref = "U1", part = "mcu-3v3", role = "controller", pin = "gpio_out" }, '
+            '{ ref = "U3", part = "fpga-io-3v3", pin = "gpio_in" }')
+    _, (chk,) = _sink(_bus(tmp_path, devs, TRACE + ', pullup = "330 Ω"', library=False))
+    assert chk.value == pytest.approx(VDD / (330 * 0.99 + 0.4 / 8e-3), rel=1e-9)
+    assert chk.status == "fail"
