@@ -114,3 +114,23 @@ def test_built_in_gpio_output_against_an_led_sized_pullup(tmp_path):
     _, (chk,) = _sink(_bus(tmp_path, devs, TRACE + ', pullup = "330 Ω"', library=False))
     assert chk.value == pytest.approx(VDD / (330 * 0.99 + 0.4 / 8e-3), rel=1e-9)
     assert chk.status == "fail"
+
+
+def test_no_pullup_names_the_pullup_inside_the_part_not_counted(tmp_path):
+    # supervisor to a microcontroller's reset with no resistor on the line: the MCU class
+    # carries a 40 kΩ reset pull-up as pullup_internal (typical of the class), counted
+    # only with internal_pullups = true; the failure must say so and how to count it
+    devs = ('{ ref = "U2", part = "supervisor-od", role = "controller", pin = "reset" }, '
+            '{ ref = "U1", part = "mcu-3v3", pin = "reset" }')
+    (ln,) = _bus(tmp_path, devs, TRACE, library=False).lines
+    chk = ln.check("pull-up")
+    assert chk.status == "fail"
+    assert "U1.reset (40 kΩ) has a pull-up inside the part" in chk.message
+    assert "internal_pullups = true on U1" in chk.fix
+    # with it set, the pull-up inside U1 is counted: the line rises, and the supervisor
+    # sinks 3.3 V / (40 kΩ + 300 Ω) (derived), well within its 1 mA
+    counted = devs.replace('pin = "reset" }', 'pin = "reset", internal_pullups = true }', 2)
+    (ln,) = _bus(tmp_path, counted, TRACE, library=False).lines
+    assert ln.check("pull-up") is None
+    (sink,) = [c for c in ln.checks if c.id == "sink-current"]
+    assert sink.value == pytest.approx(VDD / (40e3 + 300.0), rel=1e-9)

@@ -8,6 +8,7 @@ from collections.abc import Sequence
 
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError
+from pinlib.core.labels import and_list
 from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import dotted
 from pinlib.core.valueclass import value_class
@@ -428,14 +429,7 @@ def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
             own = _own_pullup(a.line, d)
             rp, rail = open_drain_pullup(a.line, a.loads, d)
             if rp is None:
-                res.add(Check("pull-up", "fail", None, None, "Ω", None,
-                              "an open-drain line needs a pull-up (common practice)",
-                              f"{d.label} is open-drain and {a.signal} has no pull-up (no "
-                              "resistor of its own, no pin carrying one): the line never "
-                              "rises", subject=d.ref,
-                              fix=f"give the line a resistor to the bus supply "
-                                  f"(lines.{a.signal}.pullup = \"4.7 kΩ\"), use a part "
-                                  "with an on-board pull-up, or enable internal pull-ups"))
+                res.add(_no_pullup_check(a, d))
                 stuck.append(d)
                 continue
             pullup[d.ref] = (rp, rail)
@@ -450,6 +444,30 @@ def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
             a.models[d.ref] = _driver_model(d, res.notes)
     a.drivers = [d for d in a.drivers if d not in stuck]
     return pullup
+
+
+def _no_pullup_check(a: LineAnalysis, d: Endpoint) -> Check:
+    """``pull-up``: an open-drain driver with nothing to pull its line up; the message
+    and fix name the pins whose pull-up inside the part is not counted (the device has
+    no ``internal_pullups = true``), often the one the board relies on."""
+    idle = [p for p in a.loads if p.pin.pullup_internal is not None
+            and not p.device.internal_pullups]
+    inside, last = "", "enable internal pull-ups"
+    if idle:
+        named = and_list(f"{p.label} ({format_si(float(p.pin.pullup_internal.at()), 'Ω')})"
+                         for p in idle)
+        refs = and_list(dict.fromkeys(p.device.ref for p in idle))
+        inside = (f"; {named} {'has a pull-up' if len(idle) == 1 else 'have pull-ups'} "
+                  f"inside the part, counted only with internal_pullups = true")
+        last = f"set internal_pullups = true on {refs} (its entry on this bus)"
+    return Check("pull-up", "fail", None, None, "Ω", None,
+                 "an open-drain line needs a pull-up (common practice)",
+                 f"{d.label} is open-drain and {a.signal} has no pull-up counted (no "
+                 f"resistor of its own, no pin carrying one), so the line never "
+                 f"rises{inside}", subject=d.ref,
+                 fix=f"give the line a resistor to the bus supply "
+                     f"(lines.{a.signal}.pullup = \"4.7 kΩ\"), use a part with an on-board "
+                     f"pull-up, or {last}")
 
 
 def _electrical_length(a: LineAnalysis, notes: list) -> None:
