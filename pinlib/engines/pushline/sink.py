@@ -70,9 +70,9 @@ def _check(a: LineAnalysis, d: Endpoint, rp: float, rail: float, v_ol: float,
     if current > i_ol:
         rp_min = (rail - v_ol) / i_ol - a.rs
         fix = (f"keep the line's pull-ups together at or above {_fmt(rp_min, 'Ω')} over "
-               f"their tolerance, or use a driver rated for {_fmt(current, 'A')}: beyond "
-               f"{_fmt(i_ol, 'A')} its low level is no longer the {_fmt(v_ol, 'V')} that "
-               "level-low reads")
+               f"their tolerance, or use a driver rated for {_fmt(current, 'A')}: its part "
+               f"states its low level ({_fmt(v_ol, 'V')}) only up to {_fmt(i_ol, 'A')}, "
+               "and level-low relies on it")
     return check_max(
         "sink-current", current, i_ol, "A", d.source("i_ol"),
         f"{a.signal} sink current {_fmt(current, 'A')} into {d.label} (pull-up "
