@@ -294,10 +294,12 @@ def _requests(li: LineInputs, a: LineAnalysis, pullup: dict) -> list[tuple]:
             levels, pairs = _reads(a, d, others)
             # the ringing check reads the fast corner's edges where a driver has one
             pairs = () if a.models[d.ref].fast is not None else pairs
-            out.append(((a.stretches, *plan.rise[:3], plan.rise_distributed),
-                        EdgeUse(*plan.rise[3:5], "rise", levels, pairs)))
-            out.append(((a.stretches, *plan.fall[:3], plan.distributed),
-                        EdgeUse(*plan.fall[3:5], "fall", levels, pairs)))
+            for edge, dist in (("rise", plan.rise_distributed), ("fall", plan.distributed)):
+                if plan.own_point(edge):
+                    continue  # a chain of two points, the tree solver's: solved in turn
+                e = getattr(plan, edge)
+                out.append(((a.stretches, *e[:3], dist), EdgeUse(*e[3:5], edge, levels,
+                                                                 pairs)))
     return out
 
 

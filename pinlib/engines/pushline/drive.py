@@ -252,17 +252,37 @@ def drive_case(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver
     """
     plan = edge_plan(stretches, driver, model, loads, rs, extra_c, long=long,
                      r_pullup=r_pullup, v_pullup=v_pullup)
-    solve_edges(stretches, [(*plan.rise[:3], plan.rise_distributed),
-                            (*plan.fall[:3], plan.distributed)])  # both in one march
-    rise = simulate_edge(stretches, *plan.rise, distributed=plan.rise_distributed,
-                         edge="rise")
-    fall = simulate_edge(stretches, *plan.fall, distributed=plan.distributed, edge="fall")
+    solve_edges(stretches, [(*getattr(plan, e)[:3], d) for e, d in (
+        ("rise", plan.rise_distributed), ("fall", plan.distributed))
+        if not plan.own_point(e)])  # those of the far end in one march
+    rise, fall = (_own_point_edge(stretches, plan, e) if plan.own_point(e) else
+                  simulate_edge(stretches, *getattr(plan, e), edge=e,
+                                distributed=plan.rise_distributed if e == "rise"
+                                else plan.distributed) for e in ("rise", "fall"))
     ref = ref_times(driver, model, plan, r_pullup)
     fast = (None, None)
     if driver.pin.drive != "open-drain" and model.fast is not None:
         fast = _fast_edges(stretches, model.fast, rs, plan.c_far, plan.v_high, long)
     return DriveCase(driver, model, rs, plan.c_far, plan.distributed, rise, fall, ref,
                      plan.v_low, plan.v_high, *fast)
+
+
+def _own_point_edge(stretches: Sequence[Stretch], plan: EdgePlan, edge: str) -> EdgeWave:
+    """One edge of :func:`drive_case` with the driver's own pin (``plan.c_own``) at its
+    point and the rest at the far end: the line as a chain of points (the tree solver's),
+    the edge read at the far end."""
+    from pinlib.engines.pushline.routes import route_net, tree_edges
+
+    r, ramp, c_far, v_from, v_to = getattr(plan, edge)
+    lines = [st for st in stretches if st.td > 0]
+    net = route_net([(f"p{i}", f"p{i + 1}") for i in range(len(lines))], lines, "p0")
+    caps = [0.0] * len(net.names)
+    caps[0] += plan.c_own
+    # a stretch without a delay, as simulate_edge takes it: a capacitance at the far end
+    caps[-1] += c_far + sum(st.c for st in stretches if not st.td > 0)
+    waves = tree_edges(net, 0, r, ramp, caps, v_from, v_to, distributed=True, edge=edge,
+                       keep=[len(net.names) - 1])
+    return waves.at(len(net.names) - 1)
 
 
 def ref_times(driver: Endpoint, model: drv.Driver, plan: EdgePlan,
@@ -299,6 +319,15 @@ class EdgePlan:
     c_far: float
     v_low: float
     v_high: float
+    c_own: float = 0.0
+
+    def own_point(self, edge: str) -> bool:
+        """Whether ``edge`` is solved with the driver's own pin at its point of the line
+        (``c_own``, an open-drain sink's pin on an edge solved as a line), not at the far
+        end with the rest: :func:`drive_case` solves it as a chain of two points, not
+        by :func:`simulate_edge`. [1]"""
+        dist = self.rise_distributed if edge == "rise" else self.distributed
+        return self.c_own > 0 and dist
 
 
 def edge_plan(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver,
@@ -309,15 +338,18 @@ def edge_plan(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver,
     if driver.pin.drive == "open-drain":
         rp = float(r_pullup)
         v_lo, v_hi, r_th = _open_drain_levels(driver, loads, model, rs, rp, v_pullup)
-        distributed = needs_distributed(stretches, r_th, c_far, long)
-        # The pull-up (>> Z0) charges the line as one capacitance, the released sink's
-        # own pin with the rest (its c_in is there whether it sinks or not): the load the
-        # plan states; the sink discharges its own pin directly, so the fall loads it
-        # with the others alone.
-        c_rise = c_far + driver.c_in
-        return EdgePlan((rp, 0.0, c_rise, v_lo, v_hi), (r_th, model.t_ramp_fall, c_far, v_hi,
-                                                        v_lo), distributed, False, c_rise,
-                        v_lo, v_hi)
+        # The sink's own pin is on the net whether it sinks or not: the pull-up charges
+        # it on the rise and the sink discharges it on the fall, at the driver's own
+        # point (ngspice agrees: tests/test_gpio_spice.py). An edge solved as one lumped
+        # capacitance counts it with the rest; an edge solved as a line keeps it at the
+        # driver's point (c_own), which drive_case solves as a chain of two points.
+        c_all = c_far + driver.c_in
+        rise_dist = needs_distributed(stretches, rp, c_all, long)
+        distributed = needs_distributed(stretches, r_th, c_all, long)
+        own = driver.c_in if (rise_dist or distributed) and driver.c_in > 0 else 0.0
+        return EdgePlan((rp, 0.0, c_far if rise_dist and own else c_all, v_lo, v_hi),
+                        (r_th, model.t_ramp_fall, c_far if distributed and own else c_all,
+                         v_hi, v_lo), distributed, rise_dist, c_all, v_lo, v_hi, own)
     vdd = driver.vdd
     distributed = needs_distributed(stretches, min(model.r_rise, model.r_fall) + rs, c_far,
                                     long)
@@ -386,13 +418,14 @@ def route_case(net: RouteNet, stretches: Sequence[Stretch], driver: Endpoint,
                      r_pullup=r_pullup, v_pullup=v_pullup)
     c_far, distributed, v_lo, v_hi = plan.c_far, plan.distributed, plan.v_low, plan.v_high
     points = {}
-    # an open-drain rise charges the released sink's own pin too, at its point
-    rise_caps = caps if driver.pin.drive != "open-drain" else node_caps(
+    # an open-drain sink's own pin is on the net whether it sinks or not: the pull-up
+    # charges it on the rise and the sink discharges it on the fall, at its point
+    od_caps = caps if driver.pin.drive != "open-drain" else node_caps(
         net, {**{p.ref: p.c_in for p in loads}, driver.ref: driver.c_in}, extra_c)
     for edge, (r, ramp, _, v_from, v_to), dist in (
             ("rise", plan.rise, plan.rise_distributed), ("fall", plan.fall, distributed)):
-        points[edge] = tree_edges(net, src, r, ramp, rise_caps if edge == "rise" else caps,
-                                  v_from, v_to, distributed=dist, edge=edge, keep=keep)
+        points[edge] = tree_edges(net, src, r, ramp, od_caps, v_from, v_to,
+                                  distributed=dist, edge=edge, keep=keep)
     ref = ref_times(driver, model, plan, r_pullup)
     fast = None
     if driver.pin.drive != "open-drain" and model.fast is not None:
