@@ -2558,6 +2558,25 @@ def _(env):
     return _fails(lambda e: check_design(design), env).message
 
 
+@case("LINE_HELD_LOW", lambda: M.LINE_HELD_LOW.format(
+    signal="reset", rp="1 GΩ", leak="3 µA", drop="3 kV", rail="3.3 V"))
+def _(env):
+    # a supervisor's open-drain reset to a microcontroller (1 µA and 2 µA of leakage,
+    # typical of the classes) through a 1 GΩ pull-up: the line never leaves 0 V
+    text = """
+[[bus]]
+id = "reset"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U2", part = "supervisor-od", role = "controller", pin = "reset" },
+  { ref = "U1", part = "mcu-3v3", pin = "reset" },
+]
+lines.reset = { length = "3 cm", geometry = "g", pullup = "1 GΩ", pullup_tolerance = "0 %" }
+"""
+    return _fails(lambda e: _check(e.design(text)), env)
+
+
 @case("NO_DRIVER_ON_LINE")
 def _(env):
     # both on the line through input pins: none drives it

@@ -134,3 +134,25 @@ def test_no_pullup_names_the_pullup_inside_the_part_not_counted(tmp_path):
     assert ln.check("pull-up") is None
     (sink,) = [c for c in ln.checks if c.id == "sink-current"]
     assert sink.value == pytest.approx(VDD / (40e3 + 300.0), rel=1e-9)
+
+
+def test_leakage_that_drops_the_whole_rail_is_refused_clearly(tmp_path):
+    # pp-ctrl's and pp-periph's irq pins leak 1 µA each (invented test parts): through
+    # 2 MΩ they would drop 4 V, more than the 3.3 V rail, so the line never leaves 0 V
+    from pinlib.core.errors import DesignError
+
+    devs = ('{ ref = "U1", part = "pp-ctrl", role = "controller", pin = "irq" }, '
+            '{ ref = "U2", part = "pp-periph", pin = "irq" }')
+    with pytest.raises(DesignError) as info:
+        _bus(tmp_path, devs, TRACE + ', pullup = "2 MΩ"')
+    err = info.value
+    assert err.field.endswith("lines.g.pullup") and err.line == 10
+    assert "never rises" in err.problem and "4 V" in err.problem
+    # derived: (3.3 V - VIH 0.7 x 3.3 V) / 2 µA = 495 kΩ keeps the high level at VIH
+    assert "495 kΩ" in err.expected
+    # below rail / leak (1.65 MΩ) the line rises, to a level short of VIH: the
+    # level-high check fails instead, with the high level 3.3 V - 2 µA x 1.5 MΩ x 1.01
+    (ln,) = _bus(tmp_path, devs, TRACE + ', pullup = "1.5 MΩ"').lines
+    high = [c for c in ln.checks if c.id == "level-high"]
+    assert high and all(c.status == "fail" for c in high)
+    assert high[0].value == pytest.approx(VDD - 2e-6 * 1.5e6 * 1.01, rel=1e-9)

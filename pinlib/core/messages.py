@@ -409,6 +409,9 @@ FIT_TWO_DRIVERS = ("the points fit two drivers within {tolerance}: r_out {r_out}
 NOT_OPEN_DRAIN_BUS = "not an open-drain bus"
 NOT_PUSH_PULL_BUS = "the push-pull engine evaluates spi and gpio buses"
 NO_DRIVER_ON_LINE = "no device drives this line"
+LINE_HELD_LOW = ("{signal}'s pull-up {rp} (as evaluated, within its tolerance) "
+                 "against the pins' leakage {leak} would drop {drop}, more than "
+                 "the {rail} rail: the line never rises")
 # pinlib/engines/dispatch.py: hints naming where an error an engine met comes from
 THRESHOLDS_INVERTED = ("v_il {v_il} lies above v_ih {v_ih} at every supply: no input "
                        "reads that way (the two swapped, or a slip?)")

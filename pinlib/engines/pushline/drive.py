@@ -344,7 +344,9 @@ def edge_plan(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver,
         # capacitance counts it with the rest; an edge solved as a line keeps it at the
         # driver's point (c_own), which drive_case solves as a chain of two points.
         c_all = c_far + driver.c_in
-        rise_dist = needs_distributed(stretches, rp, c_all, long)
+        # the rise is a step through the pull-up: a line for it only where its RC would
+        # be off (L / (R^2 C)), not for being long against the sink's fast fall
+        rise_dist = needs_distributed(stretches, rp, c_all, False)
         distributed = needs_distributed(stretches, r_th, c_all, long)
         own = driver.c_in if (rise_dist or distributed) and driver.c_in > 0 else 0.0
         return EdgePlan((rp, 0.0, c_far if rise_dist and own else c_all, v_lo, v_hi),

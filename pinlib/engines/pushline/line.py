@@ -432,6 +432,7 @@ def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
                 res.add(_no_pullup_check(a, d))
                 stuck.append(d)
                 continue
+            _held_low(a, d, rp, rail)
             pullup[d.ref] = (rp, rail)
             if own is not None and not any(n.startswith("pull-up:") for n in res.notes):
                 r_own, to = own
@@ -444,6 +445,29 @@ def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
             a.models[d.ref] = _driver_model(d, res.notes)
     a.drivers = [d for d in a.drivers if d not in stuck]
     return pullup
+
+
+def _held_low(a: LineAnalysis, d: Endpoint, rp: float, rail: float) -> None:
+    """Refuse a line whose pins' leakage through the pull-ups would drop more than the
+    rail: it never leaves 0 V, so there is no edge to solve. An error, not a failing
+    check, since at a corner of the tolerances a board without the line's checks would
+    read to the corner search as their worst."""
+    leak = sum(float(p.pin.leakage.at()) for p in _others(a.loads, d) + [d]
+               if p.pin.leakage is not None)
+    if not leak > 0 or rail - leak * rp > 0:
+        return
+    vih = [v for v in (r.level("v_ih") for r in a.receivers) if v is not None]
+    reach = (f"at most {format_si((rail - max(vih)) / leak, 'Ω')}, which holds the high "
+             f"level at the inputs' VIH {format_si(max(vih), 'V')}"
+             if vih and rail > max(vih) else f"far below {format_si(rail / leak, 'Ω')}")
+    loc = a.line.loc + ("pullup",) if a.line.loc else ()
+    err = DesignError(
+        M.LINE_HELD_LOW.format(signal=a.signal, rp=format_si(rp, "Ω"),
+                               leak=format_si(leak, "A"), drop=format_si(leak * rp, "V"),
+                               rail=format_si(rail, "V")),
+        field=dotted(loc) or f"lines.{a.signal}.pullup", expected=f"a pull-up of {reach}")
+    err.loc = loc  # the line's pull-up in the file (the dispatcher's line)
+    raise err
 
 
 def _no_pullup_check(a: LineAnalysis, d: Endpoint) -> Check:
