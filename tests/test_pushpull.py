@@ -1312,3 +1312,16 @@ def test_the_electrical_length_note_says_the_rule_once():
         assert re.search(r"electrically (long, beyond|short, within) 1/6 of the edge "
                          r"\(Johnson & Graham, High-Speed Digital Design, 1993; common "
                          r"practice\)$", n), n
+
+
+def test_unfitted_driver_says_its_own_pin_is_left_out(lib):
+    # pp-ctrl's outputs state r_out and no edge points (invented test part): no fit holds
+    # the pin's own 5 pF, which the line leaves out of every driver's load, so the
+    # engine says so; a built-in class with edge points gets no such note
+    a = controller_line(lib, [trace50(0.05)])
+    (note,) = [n for n in a.result.notes if "own pin capacitance" in n]
+    assert note.startswith("U1.sclk: its own pin capacitance (5 pF)")
+    assert "rise and fall" in note
+    d = load_design(DEMO)
+    res = evaluate_bus(d.bus("flash"), d)
+    assert not any("own pin capacitance" in n for ln in res.lines for n in ln.notes)

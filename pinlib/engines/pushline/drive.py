@@ -198,6 +198,13 @@ def _driver_model(ep: Endpoint, notes: list) -> drv.Driver:
         notes.append(f"{ep.label}: {w}")
     for n in model.notes:
         notes.append(f"{ep.label}: {n}")
+    unfitted = [e for e in ("rise", "fall") if model.basis.get(f"t_ramp_{e}") == "default"]
+    if unfitted and ep.c_in > 0:
+        # a model fitted to edge points holds the pin's own capacitance in its fit; one
+        # without them does not, and the line leaves the driver's own pin out
+        notes.append(f"{ep.label}: its own pin capacitance ({format_si(ep.c_in, 'F')}) is "
+                     f"not in its {' and '.join(unfitted)} (no edge points, which would "
+                     "hold it): those edges may be faster, and ring more, than on the board")
     if model.fast is not None:
         notes.extend(f"{ep.label}: {n}" for n in model.fast.notes)
         notes.append(f"{ep.label}: fast corner (pins.{ep.pin_name}.fast) used for overshoot, "
