@@ -431,3 +431,16 @@ def test_rise_without_the_probe_is_kept_out_of_the_command(gpio_design):
     assert got.rise_alone == pytest.approx(t * 20e-12 / 30e-12, rel=1e-9)
     assert got.rise_alone == pytest.approx(_gpio_reading(GPIO_CB, 0.0), rel=1e-9)
     assert "rise_alone" not in got.to_json() and "without the probe" not in got.format_text()
+
+
+def test_levels_tolerances_and_a_probe_of_none_keep_their_precision(design):
+    # a level of 0.3 % read "0%" and a 0 pF probe "0 F"; a pull-up tolerance of 0.5 %
+    # read "0%" (invented test data: levels 0.3 % and 70 %, no probe, Rp 0.5 %)
+    text = DESIGN.replace('pullup = "2.2 kΩ"', 'pullup = "2.2 kΩ"\npullup_tolerance = "0.5 %"')
+    design.write_text(text, encoding="utf-8")
+    got = compare_rise(load_design(design), "i2c0", 250e-9, 0.0, levels=(0.003, 0.7))
+    first = got.format_text().splitlines()[0]
+    assert "(0.3 % to 70 %)" in first, first
+    assert "with a 0 pF probe" in first and "0 F" not in first, first
+    assert "(±0.5 %)" in first and "0%" not in first, first
+    assert "±10 % reading" in got.format_text()

@@ -44,7 +44,15 @@ _OPTIONS = {"t_measured": ("--rise", "s"), "c_probe": ("--probe", "F"), "lo/hi":
 READING_TOLERANCE = 0.10
 
 def _cap(value: float) -> str:
+    """A capacitance as text; none at all in the prefix the others use: "0 pF", not
+    "0 F"."""
     return format_si(value, "F") if value else "0 pF"
+
+
+def _pct(fraction: float) -> str:
+    """A fraction as a percentage with the digits it needs: "30 %", "0.3 %", "0.5 %"
+    (a level or a tolerance under 1 % never reads "0%")."""
+    return format_si(fraction, "%")
 
 
 _REVISIT = {
@@ -145,13 +153,12 @@ class BenchComparison:
         lo, hi = self.levels
         f = format_si
         lines = [
-            f"{self.place()}: rise "
-            f"{f(self.rise, 's')} ({lo:.0%}-{hi:.0%}) with a {f(self.c_probe, 'F')} probe, "
-            f"Rp {f(self.rp, 'Ω')} (±{self.rp_tolerance:.0%})",
-            f"  measured Cb  {f(self.cb, 'F')}  (range {f(self.cb_low, 'F')} to "
-            f"{f(self.cb_high, 'F')}: pull-up tolerance and ±{READING_TOLERANCE:.0%} reading, "
-            "common practice)",
-            f"  modelled Cb  {f(self.cb_model, 'F')}  (" + ", ".join(
+            f"{self.place()}: rise {f(self.rise, 's')} ({_pct(lo)} to {_pct(hi)}) with a "
+            f"{_cap(self.c_probe)} probe, Rp {f(self.rp, 'Ω')} (±{_pct(self.rp_tolerance)})",
+            f"  measured Cb  {_cap(self.cb)}  (range {_cap(self.cb_low)} to "
+            f"{_cap(self.cb_high)}: pull-up tolerance and ±{_pct(READING_TOLERANCE)} "
+            "reading, common practice)",
+            f"  modelled Cb  {_cap(self.cb_model)}  (" + ", ".join(
                 f"{k} {_cap(v)}" for k, v in self.contributions.items()) + ")",
         ]
         lines += [f"  note: {n}" for n in self.notes]
@@ -430,7 +437,7 @@ def _from_reading(rise: float, rp: float, c_probe: float, lo: float,
     except InputError as err:
         option, unit = _OPTIONS.get(err.field, (err.field, ""))
         if option == "--levels":
-            value = f"{lo:.0%},{hi:.0%}"
+            value = f"{lo * 100:.3g}%,{hi * 100:.3g}%"  # as the option takes them
             expected = "0 % <= LO < HI < 100 % of the rail (an RC rise never reaches 100 %)"
         else:
             value = format_si(float(err.value), unit) if unit else err.value
