@@ -527,3 +527,25 @@ def test_a_gpio_position_shows_each_buss_slowest_edge_not_a_clock():
     assert all(len(ln) <= 80 for ln in text.splitlines())
     doc = r.to_json()
     assert doc["candidates"][0]["figures"]["reset"]["worst_edge"]["unit"] == "s"
+
+
+def test_a_bridging_position_is_headed_by_both_its_segments(capsys, monkeypatch):
+    # the demo's translator Q1 joins segments main-3v3 (its side b) and sensor-1v8 (side
+    # a): the heading read "bus sensors (i2c, segment main-3v3, peripheral)", one side
+    # only, with a role that a bridge has on neither
+    monkeypatch.setenv("COLUMNS", "80")
+    assert main(["candidates", str(DEMO), "Q1", "--top", "1"]) in (0, 1)
+    out = capsys.readouterr().out
+    head = " ".join(out.split("\n\n")[0].split())
+    assert head.startswith("position Q1, now level-translator-mosfet: bus sensors (i2c, "
+                           "bridge between segments main-3v3 and sensor-1v8)"), head
+    assert "peripheral" not in head
+    assert main(["candidates", str(DEMO), "Q1", "--top", "1", "--json"]) in (0, 1)
+    bus = json.loads(capsys.readouterr().out)["buses"]
+    assert bus == [{"bus": "sensors", "protocol": "i2c", "segment": "main-3v3",
+                    "role": "peripheral", "bridge": True,
+                    "segments": ["main-3v3", "sensor-1v8"]}]
+    # a plain position keeps its one segment and its role
+    assert main(["candidates", str(DEMO), "U9", "--top", "1"]) in (0, 1)
+    head = " ".join(capsys.readouterr().out.split("\n\n")[0].split())
+    assert "bus sensors (i2c, segment sensor-1v8, peripheral)" in head, head
