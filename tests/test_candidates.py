@@ -549,3 +549,29 @@ def test_a_bridging_position_is_headed_by_both_its_segments(capsys, monkeypatch)
     assert main(["candidates", str(DEMO), "U9", "--top", "1"]) in (0, 1)
     head = " ".join(capsys.readouterr().out.split("\n\n")[0].split())
     assert "bus sensors (i2c, segment sensor-1v8, peripheral)" in head, head
+
+
+def test_cable_is_no_category_a_position_ranks(capsys, monkeypatch):
+    # --category offered "cable" though a cable stands at no position: asked for, it
+    # ranked nothing ("0 of the library's 32 parts can serve it ... 3 are cables") and
+    # exited 1 as if no part could serve
+    monkeypatch.setenv("COLUMNS", "80")
+    with pytest.raises(SystemExit):
+        main(["candidates", "--help"])
+    listed = " ".join(capsys.readouterr().out.split())
+    listed = listed[listed.index("only parts of this category"):].split(" --top")[0]
+    assert "memory" in listed and "cable" not in listed, listed
+    from pinlib.library.schema import POSITION_CATEGORIES
+
+    assert "cable" not in POSITION_CATEGORIES and "memory" in POSITION_CATEGORIES
+    with pytest.raises(SystemExit) as exc:
+        main(["candidates", str(DEMO), "U4", "--category", "cable"])
+    assert exc.value.code == 2
+    err = capsys.readouterr().err
+    assert "Traceback" not in err and all(len(ln) <= 80 for ln in err.splitlines())
+    err = " ".join(err.split())
+    assert "argument --category: a cable is no candidate: it stands at no position" in err
+    assert "(got 'cable'); expected one of controller, sensor, memory" in err, err
+    with pytest.raises(InputError, match="a cable is no candidate") as got:
+        cand.rank_candidates(DEMO_DESIGN, "U4", categories=["cable"])
+    assert "cable" not in got.value.expected and "memory" in got.value.expected

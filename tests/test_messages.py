@@ -2780,6 +2780,12 @@ def _(env):
     return _fails(lambda e: eligible(e.design(I2C_BUS), "U2", ["gadget"]), env)
 
 
+@case("CABLE_NOT_RANKED")
+def _(env):
+    from pinlib.studies.candidates import eligible
+    return _fails(lambda e: eligible(e.design(I2C_BUS), "U2", ["cable"]), env)
+
+
 # ---------------------------------------------------------------- pinlib/studies/whatif.py
 @case("UNKNOWN_DISTRIBUTION")
 def _(env):

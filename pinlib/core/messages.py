@@ -491,6 +491,8 @@ EDIT_CHANGES_MORE = "editing the design file would change more than the parts"
 EDIT_LOST_PART = "the edited design does not hold the new part"
 # pinlib/studies/candidates.py
 UNKNOWN_CATEGORY = "unknown category"
+CABLE_NOT_RANKED = ("a cable is no candidate: it stands at no position (a bus or a line "
+                    "lists it under cables)")
 # pinlib/studies/whatif/
 UNKNOWN_DISTRIBUTION = "unknown distribution"
 NOT_A_PROPORTION = "not a proportion"

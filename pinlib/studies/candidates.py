@@ -45,7 +45,7 @@ from pinlib.core.wrapping import wrap
 from pinlib.engines import memo
 from pinlib.engines import opendrain as od
 from pinlib.engines.opendrain import batch as ob
-from pinlib.library.schema import CATEGORIES, Part
+from pinlib.library.schema import CATEGORIES, POSITION_CATEGORIES, Part
 from pinlib.model.design import Bus, Design, Device
 from pinlib.model.result import (
     STATUSES,
@@ -322,6 +322,7 @@ def _listed(parts: list[str], most: int = 3) -> str:
 # ============================================================================ eligibility
 
 
+
 def _per_bus(places) -> list[tuple[Bus, Device]]:
     """One place per bus (a bridging part sits on its bus twice, once per side)."""
     out, seen = [], set()
@@ -353,10 +354,14 @@ def eligible(design: Design, ref: str, categories=None) -> tuple[list[Part], int
     """
     places = positions(design, ref)
     cats = set(categories or ())
+    expected = "one of " + ", ".join(POSITION_CATEGORIES)
+    if "cable" in cats:
+        raise InputError(M.CABLE_NOT_RANKED, field="category", value="cable",
+                         expected=expected)
     unknown = cats - set(CATEGORIES)
     if unknown:
         raise InputError(M.UNKNOWN_CATEGORY, field="category", value=sorted(unknown)[0],
-                         expected="one of " + ", ".join(CATEGORIES))
+                         expected=expected)
     out, excluded = [], 0
     for _pid, part in sorted(design.library.placeable().items()):
         if part.category == "cable" or (cats and part.category not in cats):
