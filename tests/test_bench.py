@@ -431,3 +431,75 @@ def test_rise_without_the_probe_is_kept_out_of_the_command(gpio_design):
     assert got.rise_alone == pytest.approx(t * 20e-12 / 30e-12, rel=1e-9)
     assert got.rise_alone == pytest.approx(_gpio_reading(GPIO_CB, 0.0), rel=1e-9)
     assert "rise_alone" not in got.to_json() and "without the probe" not in got.format_text()
+
+
+def test_levels_tolerances_and_a_probe_of_none_keep_their_precision(design):
+    # a level of 0.3 % read "0%" and a 0 pF probe "0 F"; a pull-up tolerance of 0.5 %
+    # read "0%" (invented test data: levels 0.3 % and 70 %, no probe, Rp 0.5 %)
+    text = DESIGN.replace('pullup = "2.2 kΩ"', 'pullup = "2.2 kΩ"\npullup_tolerance = "0.5 %"')
+    design.write_text(text, encoding="utf-8")
+    got = compare_rise(load_design(design), "i2c0", 250e-9, 0.0, levels=(0.003, 0.7))
+    first = got.format_text().splitlines()[0]
+    assert "(0.3 % to 70 %)" in first, first
+    assert "with a 0 pF probe" in first and "0 F" not in first, first
+    assert "(±0.5 %)" in first and "0%" not in first, first
+    assert "±10 % reading" in got.format_text()
+
+
+# ---------------------------------------------------------------- implausible readings
+# A reading's Cb beyond what a board's bus can hold warns (a rule of thumb: the verdict
+# and the exit status stay as they were); the bound and its basis are in the message and
+# the warning's source.
+
+
+def test_a_very_slow_reading_warns_that_its_cb_is_implausible(design, capsys, monkeypatch):
+    from pinlib.engines.bench import CB_UNMODELLED_MAX
+
+    d = load_design(design)
+    # invented test data: 1 s on I2C SDA with a 2.2 kΩ pull-up, a reading taken on the
+    # wrong time base; derived: Cb = 1 s / (2.2 kΩ x 0.8473) - 10 pF = 536 µF
+    got = compare_rise(d, "i2c0", 1.0, 10e-12)
+    assert got.cb == pytest.approx(1.0 / (2200 * K_30_70) - 10e-12, rel=1e-9)
+    assert got.verdict == "above"  # the verdict is unchanged; the warning stands beside it
+    assert len(got.warnings) == 1
+    w = got.warnings[0]
+    assert w.status == "warn" and w.id == "cb-plausible" and w.unit == "F"
+    assert w.limit == pytest.approx(got.cb_model + CB_UNMODELLED_MAX)
+    assert "common practice, no source" in w.source
+    for words in ("10 nF", "common practice", "probe", "levels", "pull-up 2.2 kΩ"):
+        assert words in w.message, (words, w.message)
+    monkeypatch.setenv("COLUMNS", "80")
+    assert main(["measured", str(design), "--bus", "i2c0", "--rise", "1s",
+                 "--probe", "10pF"]) == 1  # the disagreement's status, not the warning's
+    out = capsys.readouterr().out
+    assert all(len(ln) <= 80 for ln in out.splitlines())
+    assert "warning: Cb 536 µF from the reading is implausible" in " ".join(out.split())
+    assert main(["measured", str(design), "--bus", "i2c0", "--rise", "1s",
+                 "--probe", "10pF", "--json"]) == 1
+    data = json.loads(capsys.readouterr().out)
+    assert [x["id"] for x in data["warnings"]] == ["cb-plausible"]
+    assert data["warnings"][0]["status"] == "warn"
+    assert "common practice, no source" in data["warnings"][0]["source"]
+
+
+def test_a_reading_of_almost_no_capacitance_warns(design):
+    from pinlib.engines.bench import CB_MIN
+
+    # invented test data: a rise that the 10 pF probe alone nearly gives (probe set to
+    # 10 pF on a reading taken with a 20 pF one, say); derived: Cb = 10.5 pF - 10 pF
+    t = 2200 * 10.5e-12 * K_30_70
+    got = compare_rise(load_design(design), "i2c0", t, 10e-12)
+    assert got.cb == pytest.approx(0.5e-12, rel=1e-6)
+    assert [w.id for w in got.warnings] == ["cb-plausible"]
+    w = got.warnings[0]
+    assert w.limit == CB_MIN and "1 pF" in w.message and "probe" in w.message
+    assert "common practice, no source" in w.source
+
+
+def test_a_plausible_reading_gives_no_warning(design):
+    d = load_design(design)
+    for rise in (30e-9, 250e-9, 5e-6):  # invented test data: 6 pF to 2.7 nF
+        got = compare_rise(d, "i2c0", rise, 10e-12)
+        assert got.warnings == [], rise
+        assert got.to_json()["warnings"] == []
+        assert "warning" not in got.format_text()

@@ -527,3 +527,51 @@ def test_a_gpio_position_shows_each_buss_slowest_edge_not_a_clock():
     assert all(len(ln) <= 80 for ln in text.splitlines())
     doc = r.to_json()
     assert doc["candidates"][0]["figures"]["reset"]["worst_edge"]["unit"] == "s"
+
+
+def test_a_bridging_position_is_headed_by_both_its_segments(capsys, monkeypatch):
+    # the demo's translator Q1 joins segments main-3v3 (its side b) and sensor-1v8 (side
+    # a): the heading read "bus sensors (i2c, segment main-3v3, peripheral)", one side
+    # only, with a role that a bridge has on neither
+    monkeypatch.setenv("COLUMNS", "80")
+    assert main(["candidates", str(DEMO), "Q1", "--top", "1"]) in (0, 1)
+    out = capsys.readouterr().out
+    head = " ".join(out.split("\n\n")[0].split())
+    assert head.startswith("position Q1, now level-translator-mosfet: bus sensors (i2c, "
+                           "bridge between segments main-3v3 and sensor-1v8)"), head
+    assert "peripheral" not in head
+    assert main(["candidates", str(DEMO), "Q1", "--top", "1", "--json"]) in (0, 1)
+    bus = json.loads(capsys.readouterr().out)["buses"]
+    assert bus == [{"bus": "sensors", "protocol": "i2c", "segment": "main-3v3",
+                    "role": "peripheral", "bridge": True,
+                    "segments": ["main-3v3", "sensor-1v8"]}]
+    # a plain position keeps its one segment and its role
+    assert main(["candidates", str(DEMO), "U9", "--top", "1"]) in (0, 1)
+    head = " ".join(capsys.readouterr().out.split("\n\n")[0].split())
+    assert "bus sensors (i2c, segment sensor-1v8, peripheral)" in head, head
+
+
+def test_cable_is_no_category_a_position_ranks(capsys, monkeypatch):
+    # --category offered "cable" though a cable stands at no position: asked for, it
+    # ranked nothing ("0 of the library's 32 parts can serve it ... 3 are cables") and
+    # exited 1 as if no part could serve
+    monkeypatch.setenv("COLUMNS", "80")
+    with pytest.raises(SystemExit):
+        main(["candidates", "--help"])
+    listed = " ".join(capsys.readouterr().out.split())
+    listed = listed[listed.index("only parts of this category"):].split(" --top")[0]
+    assert "memory" in listed and "cable" not in listed, listed
+    from pinlib.library.schema import POSITION_CATEGORIES
+
+    assert "cable" not in POSITION_CATEGORIES and "memory" in POSITION_CATEGORIES
+    with pytest.raises(SystemExit) as exc:
+        main(["candidates", str(DEMO), "U4", "--category", "cable"])
+    assert exc.value.code == 2
+    err = capsys.readouterr().err
+    assert "Traceback" not in err and all(len(ln) <= 80 for ln in err.splitlines())
+    err = " ".join(err.split())
+    assert "argument --category: a cable is no candidate: it stands at no position" in err
+    assert "(got 'cable'); expected one of controller, sensor, memory" in err, err
+    with pytest.raises(InputError, match="a cable is no candidate") as got:
+        cand.rank_candidates(DEMO_DESIGN, "U4", categories=["cable"])
+    assert "cable" not in got.value.expected and "memory" in got.value.expected

@@ -803,6 +803,31 @@ def _(env):
     return env.capsys.readouterr().err
 
 
+def _bench_warning(env, rise, probe):
+    path = env.write("design.toml", HEAD + _BENCH_BUS)
+    main(["measured", str(path), "--bus", "b", "--rise", rise, "--probe", probe, "--json"])
+    return json.loads(env.capsys.readouterr().out)["warnings"][0]["message"]
+
+
+@case("BENCH_CB_TOO_HIGH", lambda: M.BENCH_CB_TOO_HIGH.format(
+    cb="536 µF", excess="536 µF", model="{model}", bound="10 nF",
+    basis="common practice, no source: a board's bus holds tens to hundreds of pF",
+    rp="2.2 kΩ").split("{model}")[1])
+def _(env):
+    # derived: 1 s / (2.2 kΩ x ln(0.7/0.3)) - 10 pF = 536 µF (a reading on the wrong
+    # time base; invented test data)
+    return _bench_warning(env, "1s", "10pF")
+
+
+@case("BENCH_CB_TOO_LOW", lambda: M.BENCH_CB_TOO_LOW.format(
+    cb="{cb}", bound="1 pF", basis="common practice, no source: one part's pin alone adds "
+    "a few pF", rp="2.2 kΩ").split("{cb}")[1])
+def _(env):
+    # derived: 2.2 kΩ x 10.5 pF x ln(0.7/0.3) = 19.57 ns: about 0.5 pF beyond the
+    # 10 pF probe (invented test data)
+    return _bench_warning(env, "19.57ns", "10pF")
+
+
 # a GPIO bus's lines measured: an open-drain reset with and without a pull-up, a push-pull
 # line (invented test data, built-in parts)
 _BENCH_GPIO = """
@@ -2772,6 +2797,12 @@ def _(env):
 def _(env):
     from pinlib.studies.candidates import eligible
     return _fails(lambda e: eligible(e.design(I2C_BUS), "U2", ["gadget"]), env)
+
+
+@case("CABLE_NOT_RANKED")
+def _(env):
+    from pinlib.studies.candidates import eligible
+    return _fails(lambda e: eligible(e.design(I2C_BUS), "U2", ["cable"]), env)
 
 
 # ---------------------------------------------------------------- pinlib/studies/whatif.py

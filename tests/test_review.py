@@ -1340,3 +1340,39 @@ def test_the_markdown_monte_carlo_table_cites_each_source_by_number(tmp_path):
     # every source written once
     sources = [ln for ln in section.splitlines() if re.match(r"- \[\d+\] ", ln)]
     assert len(sources) == len(set(ln.split("] ", 1)[1] for ln in sources))
+
+
+def test_markdown_headings_keep_to_80_columns(built, tmp_path):
+    # reproducer: a part's heading carried its title ("### U12: display-controller-spi —
+    # Display controller, SPI (4-wire with D/C), 1.65 to 3.6 V interface", 102
+    # characters), and a long design title or bus id made its heading as long.  A heading
+    # cannot wrap: the detail goes to a line under it, a name too long is shortened there
+    # with "…" and written whole under it
+    md, _ = built.markdown("demo-charts")
+    heads = [ln for ln in md.splitlines() if ln.startswith("#")]
+    assert heads and max(len(ln) for ln in heads) <= 80, max(heads, key=len)
+    at = md.index("### U12: display-controller-spi\n")
+    assert md[at:].split("\n")[2] == ("*Display controller, SPI (4-wire with D/C), 1.65 to "
+                                      "3.6 V interface*")
+    assert "### U1: mcu-3v3 — " in md  # a heading that fits keeps its title
+    # invented test data: a design title of 120 characters, a bus id of 90
+    title = "Greenhouse climate logger " + "with a very long name " * 4 + "(invented)"
+    long_id = "sensors-" + "x" * 82
+    text = DEMO.read_text(encoding="utf-8").replace(
+        'title = "Greenhouse climate logger, main board (invented demo scenario)"',
+        f'title = "{title}"').replace('id = "sensors"', f'id = "{long_id}"').replace(
+        'victim = "sensors.scl"', f'victim = "{long_id}.scl"')
+    path = tmp_path / "long.toml"
+    path.write_text(text, encoding="utf-8")
+    design = load_design(path)
+    md = review.render_markdown(design, check_design(design))
+    lines = md.splitlines()
+    heads = [ln for ln in lines if ln.startswith("#")]
+    assert max(len(ln) for ln in heads) <= 80, max(heads, key=len)
+    top = lines.index(next(ln for ln in heads if ln.startswith("# Design review: ")))
+    assert heads[0].endswith("…") and _flat(" ".join(lines[top + 1:top + 4])).startswith(
+        _flat(review._mt(f"Design review: {title}")))
+    bus = next(ln for ln in heads if ln.startswith(f"## Bus sensors-{'x' * 10}"))
+    assert "…" in bus and bus.endswith((": PASS", ": WARN", ": FAIL")), bus
+    at = lines.index(bus)
+    assert _flat(" ".join(lines[at + 1:at + 5])).startswith(f"Bus {long_id} (i2c)")

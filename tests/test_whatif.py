@@ -908,3 +908,26 @@ def test_the_interpolation_note_spells_the_pull_up_as_a_word(capsys):
     assert main(["check", str(gpio), "--monte-carlo", "200", "--seed", "1"]) == 0
     out = " ".join(capsys.readouterr().out.split())
     assert "pull-up factor 0.99–1.01" in out and "pullup factor" not in out
+
+
+def test_a_gpio_line_named_as_its_bus_is_named_once(capsys, monkeypatch):
+    # the GPIO example's bus "reset" has one line "reset": its pull-up parameter read
+    # "reset reset pull-up" and its checks "reset reset Level high U1"
+    from pinlib.engines.ppvariant import check_names, parameter_specs
+    from pinlib.engines.pushpull import evaluate_board
+
+    monkeypatch.setenv("COLUMNS", "80")
+    gpio = ROOT / "workbooks" / "designs" / "gpio-reset-board.toml"
+    d = load_design(gpio)
+    reset = next(b for b in d.buses if b.id == "reset")
+    assert "reset pull-up" in [s[0] for s in parameter_specs(reset)]
+    names = [nm["name"] for nm in check_names(reset, evaluate_board(reset, d))]
+    assert "reset level-high U1" in names and not any("reset reset" in n for n in names)
+    # a line named otherwise keeps the bus's name and its own
+    enable = next(b for b in d.buses if b.id == "fpga-enable")
+    names = [nm["name"] for nm in check_names(enable, evaluate_board(enable, d))]
+    assert "fpga-enable enable level-high U3" in names
+    assert main(["check", str(gpio), "--corners", "--monte-carlo", "100", "--seed", "1"]) == 0
+    out = " ".join(capsys.readouterr().out.split())
+    assert "reset reset" not in out
+    assert "reset pull-up ±1 %" in out and "reset Level high U1" in out

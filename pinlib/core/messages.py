@@ -456,6 +456,16 @@ REVISIT_PULLUP = ("the pull-up {rp} on the line: the fitted resistor's value and
                   "inside parts (Cb from a reading scales as 1/Rp)")
 REVISIT_PROBE = ("the measurement: the probe's capacitance, its ground lead, and the levels "
                  "the rise was read between")
+# a reading whose Cb no board's bus holds: a warning (pinlib/engines/bench.py)
+BENCH_CB_TOO_HIGH = ("Cb {cb} from the reading is implausible for a board's bus: {excess} "
+                     "above the model's {model}, where what a design leaves out (pins, "
+                     "traces, connectors) adds well under {bound} ({basis}); recheck the "
+                     "probe, the levels the rise was read between, the pull-up {rp} and the "
+                     "time base")
+BENCH_CB_TOO_LOW = ("Cb {cb} from the reading is implausible for a board's bus: under "
+                    "{bound}, less than one part's pin adds ({basis}); recheck the probe's "
+                    "capacitance (the reading's Cb is what is left once it is taken off), "
+                    "the levels the rise was read between and the pull-up {rp}")
 # a GPIO bus's line measured (pinlib/engines/bench.py)
 BENCH_NO_SUCH_LINE = "no line of that name on the bus"
 BENCH_LINE_NEEDED = "the bus has several lines: name the one measured"
@@ -484,6 +494,8 @@ EDIT_CHANGES_MORE = "editing the design file would change more than the parts"
 EDIT_LOST_PART = "the edited design does not hold the new part"
 # pinlib/studies/candidates.py
 UNKNOWN_CATEGORY = "unknown category"
+CABLE_NOT_RANKED = ("a cable is no candidate: it stands at no position (a bus or a line "
+                    "lists it under cables)")
 # pinlib/studies/whatif/
 UNKNOWN_DISTRIBUTION = "unknown distribution"
 NOT_A_PROPORTION = "not a proportion"

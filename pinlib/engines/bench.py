@@ -32,9 +32,10 @@ from pinlib.engines.pushline import open_drain_pullup
 from pinlib.engines.pushpull import line_inputs
 from pinlib.model.design import Bus, Design
 from pinlib.model.design.objects import PULLUP_TOLERANCE
+from pinlib.model.result import Check
 
-__all__ = ["READING_TOLERANCE", "BenchComparison", "MeasurableLine", "compare_rise",
-           "measurable_lines"]
+__all__ = ["CB_MIN", "CB_UNMODELLED_MAX", "READING_TOLERANCE", "BenchComparison",
+           "MeasurableLine", "compare_rise", "measurable_lines"]
 
 #: The physics' names of the reading's values, and the command's options they come from.
 _OPTIONS = {"t_measured": ("--rise", "s"), "c_probe": ("--probe", "F"), "lo/hi": ("--levels", "")}
@@ -43,8 +44,29 @@ _OPTIONS = {"t_measured": ("--rise", "s"), "c_probe": ("--probe", "F"), "lo/hi":
 #: ends are read by eye on a slow exponential): common practice, no source.
 READING_TOLERANCE = 0.10
 
+#: A reading whose Cb exceeds the model's by more than this warns that it is implausible:
+#: a board's bus holds tens to hundreds of pF, so what a design leaves out (a pin, a
+#: trace, a connector) adds well under it; 10 nF is a cable of about 100 m.  Common
+#: practice, no source.
+CB_UNMODELLED_MAX = 10e-9
+#: A reading whose Cb is under this warns as well: one part's pin alone adds a few pF.
+#: Common practice, no source.
+CB_MIN = 1e-12
+
+_CB_HIGH_BASIS = "common practice, no source: a board's bus holds tens to hundreds of pF"
+_CB_LOW_BASIS = "common practice, no source: one part's pin alone adds a few pF"
+
+
 def _cap(value: float) -> str:
+    """A capacitance as text; none at all in the prefix the others use: "0 pF", not
+    "0 F"."""
     return format_si(value, "F") if value else "0 pF"
+
+
+def _pct(fraction: float) -> str:
+    """A fraction as a percentage with the digits it needs: "30 %", "0.3 %", "0.5 %"
+    (a level or a tolerance under 1 % never reads "0%")."""
+    return format_si(fraction, "%")
 
 
 _REVISIT = {
@@ -95,6 +117,10 @@ class BenchComparison:
     rise_alone : float or None
         The rise between the same levels without the probe, at the nominal pull-up (not
         in :meth:`to_json` nor the text: the workbench's bench panel shows it). [s]
+    warnings : list of Check
+        The reading's Cb outside what a board's bus can hold (:data:`CB_MIN`,
+        :data:`CB_UNMODELLED_MAX`, rules of thumb): each a check of status ``warn``,
+        its bound and basis in ``source`` and its message (the verdict is unchanged).
     """
 
     bus: str
@@ -115,6 +141,7 @@ class BenchComparison:
     protocol: str = "i2c"
     notes: list = field(default_factory=list)
     rise_alone: float | None = None
+    warnings: list = field(default_factory=list)
 
     def place(self) -> str:
         """Where the reading was taken: ``bus reset, line reset`` or ``bus i2c0, segment
@@ -136,6 +163,7 @@ class BenchComparison:
             "cb_range": [self.cb_low, self.cb_high], "cb_model": self.cb_model,
             "contributions": dict(self.contributions), "verdict": self.verdict,
             "revisit": list(self.revisit), "notes": list(self.notes),
+            "warnings": [w.to_json() for w in self.warnings],
             "reading_tolerance": READING_TOLERANCE,
             "source": "RC rise t = Rp (Cb + C_probe) ln((1 - lo)/(1 - hi)), UM10204 rev. 6 §7.1",
         }
@@ -145,16 +173,16 @@ class BenchComparison:
         lo, hi = self.levels
         f = format_si
         lines = [
-            f"{self.place()}: rise "
-            f"{f(self.rise, 's')} ({lo:.0%}-{hi:.0%}) with a {f(self.c_probe, 'F')} probe, "
-            f"Rp {f(self.rp, 'Ω')} (±{self.rp_tolerance:.0%})",
-            f"  measured Cb  {f(self.cb, 'F')}  (range {f(self.cb_low, 'F')} to "
-            f"{f(self.cb_high, 'F')}: pull-up tolerance and ±{READING_TOLERANCE:.0%} reading, "
-            "common practice)",
-            f"  modelled Cb  {f(self.cb_model, 'F')}  (" + ", ".join(
+            f"{self.place()}: rise {f(self.rise, 's')} ({_pct(lo)} to {_pct(hi)}) with a "
+            f"{_cap(self.c_probe)} probe, Rp {f(self.rp, 'Ω')} (±{_pct(self.rp_tolerance)})",
+            f"  measured Cb  {_cap(self.cb)}  (range {_cap(self.cb_low)} to "
+            f"{_cap(self.cb_high)}: pull-up tolerance and ±{_pct(READING_TOLERANCE)} "
+            "reading, common practice)",
+            f"  modelled Cb  {_cap(self.cb_model)}  (" + ", ".join(
                 f"{k} {_cap(v)}" for k, v in self.contributions.items()) + ")",
         ]
         lines += [f"  note: {n}" for n in self.notes]
+        lines += [f"  warning: {w.message}" for w in self.warnings]
         lines.append("  " + self.verdict_text())
         lines += [f"  - {r}" for r in self.revisit]
         if width is not None:
@@ -230,7 +258,30 @@ def compare_rise(design: Design, bus_id: str, rise: float, c_probe: float, *,
     return BenchComparison(bus.id, got.segment, got.signal, float(rise), float(c_probe),
                            (float(lo), float(hi)), float(rp), tol, float(cb), cb_low, cb_high,
                            model, parts, verdict, revisit, protocol=bus.protocol,
-                           notes=list(got.notes), rise_alone=float(alone))
+                           notes=list(got.notes), rise_alone=float(alone),
+                           warnings=_implausible(float(cb), model, rp))
+
+
+def _implausible(cb: float, model: float, rp: float) -> list[Check]:
+    """The warning of a reading whose Cb no board's bus holds: more than
+    :data:`CB_UNMODELLED_MAX` above the model's, or under :data:`CB_MIN` (rules of
+    thumb: they warn, they never fail)."""
+    shown = {"cb": _cap(cb), "model": _cap(model), "rp": format_si(rp, "Ω")}
+    high = model + CB_UNMODELLED_MAX
+    if cb > high:
+        message = M.BENCH_CB_TOO_HIGH.format(
+            excess=_cap(cb - model), bound=_cap(CB_UNMODELLED_MAX), basis=_CB_HIGH_BASIS,
+            **shown)
+        source = (f"{_CB_HIGH_BASIS}, so a reading's Cb stays within "
+                  f"{_cap(CB_UNMODELLED_MAX)} of the model's")
+        return [Check("cb-plausible", "warn", cb, high, "F", (high - cb) / high, source,
+                      message, details={"rule_of_thumb": True})]
+    if cb < CB_MIN:
+        message = M.BENCH_CB_TOO_LOW.format(bound=_cap(CB_MIN), basis=_CB_LOW_BASIS, **shown)
+        source = f"{_CB_LOW_BASIS}, so a reading's Cb is at least {_cap(CB_MIN)}"
+        return [Check("cb-plausible", "warn", cb, CB_MIN, "F", (cb - CB_MIN) / CB_MIN,
+                      source, message, details={"rule_of_thumb": True})]
+    return []
 
 
 @value_class(frozen=True)
@@ -430,7 +481,7 @@ def _from_reading(rise: float, rp: float, c_probe: float, lo: float,
     except InputError as err:
         option, unit = _OPTIONS.get(err.field, (err.field, ""))
         if option == "--levels":
-            value = f"{lo:.0%},{hi:.0%}"
+            value = f"{lo * 100:.3g}%,{hi * 100:.3g}%"  # as the option takes them
             expected = "0 % <= LO < HI < 100 % of the rail (an RC rise never reaches 100 %)"
         else:
             value = format_si(float(err.value), unit) if unit else err.value

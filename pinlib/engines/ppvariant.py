@@ -14,6 +14,7 @@ from dataclasses import replace
 from pinlib.model.design import Bus
 
 __all__ = [
+    "line_place",
     "parameter_specs",
     "rail_key",
     "line_of_key",
@@ -28,6 +29,12 @@ __all__ = [
 def rail_key(v: float, tol: float) -> tuple:
     """The parameter key of a rail of ``v`` volts at ± ``tol``."""
     return ("rail", round(float(v), 9), round(float(tol), 9))
+
+
+def line_place(bus_id: str, signal: str) -> str:
+    """A bus's line as a parameter's or a check's name writes it: ``"fpga-enable
+    enable"``; a line named as its bus once (``"reset"``, not ``"reset reset"``)."""
+    return bus_id if signal == bus_id else f"{bus_id} {signal}"
 
 
 def parameter_specs(bus: Bus) -> list[tuple]:
@@ -67,13 +74,13 @@ def parameter_specs(bus: Bus) -> list[tuple]:
     ctol = bus.capacitance_tolerance or 0.0
     for sig, line in bus.lines.items():
         if ltol > 0 and line.sections and line.length > 0:
-            add(f"{bus.id} {sig} length", "length", float(line.length), ltol, "m",
+            add(f"{line_place(bus.id, sig)} length", "length", float(line.length), ltol, "m",
                 ("line-length", bus.id, sig))
         if ctol > 0 and line.extra_capacitance > 0:
-            add(f"{bus.id} {sig} extra capacitance", "capacitance", 1.0, ctol, "",
+            add(f"{line_place(bus.id, sig)} extra capacitance", "capacitance", 1.0, ctol, "",
                 ("line-extra", bus.id, sig))
         if line.pullup is not None and line.pullup_tolerance:
-            add(f"{bus.id} {sig} pull-up", "pullup", float(line.pullup),
+            add(f"{line_place(bus.id, sig)} pull-up", "pullup", float(line.pullup),
                 line.pullup_tolerance, "Ω", ("line-pullup", bus.id, sig))
     return out
 
@@ -181,12 +188,13 @@ def check_names(bus: Bus, res) -> list[dict]:
     Returns
     -------
     list of dict
-        ``name`` (``"<bus> [<signal>] <check id> [<subject>]"``), ``engine``,
+        ``name`` (``"<bus> [<signal>] <check id> [<subject>]"``, the signal left out
+        where it is the bus's id: :func:`line_place`), ``engine``,
         ``signal``. [1]
     """
     out, used = [], {}
     for sig, c in flat_checks(res):
-        name = f"{bus.id} {sig} {c.id}" if sig else f"{bus.id} {c.id}"
+        name = f"{line_place(bus.id, sig) if sig else bus.id} {c.id}"
         if c.subject:
             name += f" {c.subject}"
         used[name] = used.get(name, 0) + 1

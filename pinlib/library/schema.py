@@ -63,6 +63,7 @@ from pinlib.library.values import (
 __all__ = [
     "FORMAT",
     "CATEGORIES",
+    "POSITION_CATEGORIES",
     "FUNCTIONS",
     "DRIVES",
     "Edge",
@@ -84,6 +85,9 @@ CATEGORIES = (
     "buffer", "translator", "logic", "connector", "cable", "module", "isolator",
     "power", "network", "driver",
 )
+#: The categories of parts that stand at a device's position (what ``pinlib candidates``
+#: ranks): every one but ``cable``, which a bus or a line names in ``cables``.
+POSITION_CATEGORIES = tuple(c for c in CATEGORIES if c != "cable")
 FUNCTIONS = PIN_FUNCTIONS
 DRIVES = ("open-drain", "push-pull", "input")
 

@@ -35,7 +35,7 @@ import numpy as np
 from pinlib.core import messages as M
 from pinlib.core.collector import older_objects_aside
 from pinlib.core.errors import InputError, PinlibError
-from pinlib.core.labels import check_label, short_label
+from pinlib.core.labels import and_list, check_label, short_label
 from pinlib.core.progress import progress_bar
 from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS
 from pinlib.core.quantity import format_si
@@ -45,7 +45,7 @@ from pinlib.core.wrapping import wrap
 from pinlib.engines import memo
 from pinlib.engines import opendrain as od
 from pinlib.engines.opendrain import batch as ob
-from pinlib.library.schema import CATEGORIES, Part
+from pinlib.library.schema import CATEGORIES, POSITION_CATEGORIES, Part
 from pinlib.model.design import Bus, Design, Device
 from pinlib.model.result import (
     STATUSES,
@@ -258,9 +258,7 @@ class Ranking:
     def format_text(self, top: int | None = 20, width: int | None = None) -> str:
         """The ranking as text; ``width``: characters per line (None: no limit), the
         table's trailing figure columns left out (and named) where they do not fit."""
-        where = "; ".join(f"bus {b['bus']} ({b['protocol']}"
-                          + (f", segment {b['segment']}" if b.get("segment") else "")
-                          + f", {b['role']})" for b in self.buses)
+        where = "; ".join(_bus_text(b) for b in self.buses)
         lines = [f"position {self.ref}, now {self.current}: {where}", self.count_text()]
         if width is not None:
             lines = [w for ln in lines for w in wrap(ln, width)]
@@ -324,6 +322,7 @@ def _listed(parts: list[str], most: int = 3) -> str:
 # ============================================================================ eligibility
 
 
+
 def _per_bus(places) -> list[tuple[Bus, Device]]:
     """One place per bus (a bridging part sits on its bus twice, once per side)."""
     out, seen = [], set()
@@ -355,10 +354,14 @@ def eligible(design: Design, ref: str, categories=None) -> tuple[list[Part], int
     """
     places = positions(design, ref)
     cats = set(categories or ())
+    expected = "one of " + ", ".join(POSITION_CATEGORIES)
+    if "cable" in cats:
+        raise InputError(M.CABLE_NOT_RANKED, field="category", value="cable",
+                         expected=expected)
     unknown = cats - set(CATEGORIES)
     if unknown:
         raise InputError(M.UNKNOWN_CATEGORY, field="category", value=sorted(unknown)[0],
-                         expected="one of " + ", ".join(CATEGORIES))
+                         expected=expected)
     out, excluded = [], 0
     for _pid, part in sorted(design.library.placeable().items()):
         if part.category == "cable" or (cats and part.category not in cats):
@@ -384,12 +387,30 @@ def set_aside(design: Design, categories=None) -> dict:
 
 
 def _bus_rows(places) -> list[dict]:
+    """A row per bus of the position: its id, protocol, segment (on a bus of several)
+    and role; a bridging part's row adds ``bridge`` and ``segments``, every segment it
+    joins (``segment`` is the first, as the design lists them)."""
     rows = []
     for bus, dev in places:
-        seg = next((s.id for s in bus.segments if any(d is dev for d in s.devices)), None)
-        rows.append({"bus": bus.id, "protocol": bus.protocol,
-                     "segment": seg if len(bus.segments) > 1 else None, "role": dev.role})
+        segs = [s.id for s in bus.segments if any(d.ref == dev.ref for d in s.devices)]
+        row = {"bus": bus.id, "protocol": bus.protocol,
+               "segment": segs[0] if segs and len(bus.segments) > 1 else None,
+               "role": dev.role}
+        if dev.is_bridge:
+            row.update(bridge=True, segments=segs)
+        rows.append(row)
     return rows
+
+
+def _bus_text(row: dict) -> str:
+    """A bus of the position as the ranking's heading names it: ``bus sensors (i2c,
+    segment main-3v3, peripheral)``; a bridging part by the segments it joins, ``bus
+    sensors (i2c, bridge between segments main-3v3 and sensor-1v8)``."""
+    if row.get("bridge") and len(row.get("segments", ())) > 1:
+        inside = f"bridge between segments {and_list(row['segments'])}"
+    else:
+        inside = (f"segment {row['segment']}, " if row.get("segment") else "") + row["role"]
+    return f"bus {row['bus']} ({row['protocol']}, {inside})"
 
 
 # ============================================================================ summaries

@@ -34,7 +34,7 @@ library or the reference is not valid.
 
 
 def add_parser(sub) -> None:
-    from pinlib.library.schema import CATEGORIES
+    from pinlib.library.schema import POSITION_CATEGORIES
 
     p = sub.add_parser(
         "candidates",
@@ -47,9 +47,10 @@ def add_parser(sub) -> None:
     )
     p.add_argument("design", metavar="DESIGN", help="the design file (.toml)")
     p.add_argument("ref", metavar="REF", help="the reference designator of the position (U4)")
-    p.add_argument("--category", metavar="CAT", action="append", choices=CATEGORIES,
-                   default=[], help="only parts of this category (repeatable): "
-                                    + ", ".join(CATEGORIES))
+    p.add_argument("--category", metavar="CAT", action="append", type=_position_category,
+                   choices=POSITION_CATEGORIES, default=[],
+                   help="only parts of this category (repeatable): "
+                        + ", ".join(POSITION_CATEGORIES))
     p.add_argument("--top", metavar="N", type=_positive, default=None,
                    help="show the best N (text: 20 unless given; JSON: all unless given)")
     p.add_argument("--json", action="store_true",
@@ -59,6 +60,18 @@ def add_parser(sub) -> None:
     p.add_argument("--progress", action="store_true",
                    help="show a progress bar even when standard error is not a terminal")
     p.set_defaults(run=run)
+
+
+def _position_category(text: str) -> str:
+    """A category ``--category`` takes; ``cable`` refused with why (a cable stands at no
+    position), the others left to the option's choices."""
+    if text == "cable":
+        from pinlib.library.schema import POSITION_CATEGORIES
+
+        raise argparse.ArgumentTypeError(
+            M.CABLE_NOT_RANKED + f" (got {text!r}); expected one of "
+            + ", ".join(POSITION_CATEGORIES))
+    return text
 
 
 def _positive(text: str) -> int:

@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import base64
 import re
+import textwrap
 
 from pinlib import __version__
 from pinlib.core import messages as M
@@ -18,7 +19,6 @@ from pinlib.present.review.parts import (
     _basis,
     _origin,
     _part_facts,
-    _part_heading,
     _part_value,
     _typ,
 )
@@ -135,6 +135,44 @@ def _wrapped(text: str, marker: str = "", hang: str | None = None) -> list[str]:
     return out
 
 
+def _whole_words(text: str) -> list[str]:
+    """Markdown text (escaped already) in lines of at most :data:`TEXT_WIDTH`
+    characters where its words allow, a word longer than that kept whole on a line of
+    its own (a viewer joins the lines with a space: a name cut in two would read as two
+    words).  A line that would start a block is made plain, as in :func:`_wrapped`."""
+    lines = textwrap.wrap(text, TEXT_WIDTH - 1, break_long_words=False,
+                          break_on_hyphens=False) or [""]
+    return [lines[0]] + [_MD_LINE_START.sub(_plain_start, ln, count=1) for ln in lines[1:]]
+
+
+def _heading_lines(marks: str, name: str, tail: str = "", detail: str | None = None
+                   ) -> list[str]:
+    """A heading of at most :data:`TEXT_WIDTH` characters (a Markdown heading cannot
+    wrap), and the lines under it: ``marks`` (``"###"``), the user's ``name`` escaped,
+    ``tail`` (pinlib's own, ``": PASS"``) after it.  ``detail`` follows the name after
+    " — " where the whole fits, else it goes on a line of its own under the heading.  A
+    name too long for the line is cut with "…" in the heading and written whole under
+    it, so the identifying name is never lost."""
+
+    def head(text: str) -> str:
+        return f"{marks} {_mt(text) if tail else _title(text)}{tail}"
+
+    under: list[str] = []
+    if detail:
+        line = head(f"{name} — {detail}")
+        if len(line) <= TEXT_WIDTH:
+            return [line, ""]
+        under = [*_wrapped(f"*{_mt(detail)}*"), ""]
+    line = head(name)
+    if len(line) > TEXT_WIDTH:
+        cut = name
+        while cut and len(head(cut.rstrip() + "…")) > TEXT_WIDTH:
+            cut = cut[:-1]
+        line = head(cut.rstrip() + "…")
+        under = [*_whole_words(_mt(name)), "", *under]
+    return [line, "", *under]
+
+
 def _row(cells) -> str:
     return "| " + " | ".join(cells) + " |"
 
@@ -158,7 +196,7 @@ class _Markdown:
     def page(self) -> tuple[str, dict[str, str]]:
         r, res = self.r, self.r.result
         counts = _counts(res)
-        self.w(f"# Design review: {_title(res.design)}", "",
+        self.w(*_heading_lines("#", f"Design review: {res.design}"),
                *_wrapped(f"**Caution.** {_mt(CAUTION)}", "> ", "> "), "")
         if res.path:
             self.w(f"Design file: {_code(res.path)}", "")
@@ -189,14 +227,14 @@ class _Markdown:
 
     def bus(self, b: BusResult):
         design_bus = next((x for x in self.r.design.buses if x.id == b.id), None)
-        self.w(f"## {_mt(_heading(b))}: {_MARK[b.status]}", "")
+        self.w(*_heading_lines("##", _heading(b), f": {_MARK[b.status]}"))
         if design_bus is not None and design_bus.title:
             self.w(*_wrapped(f"*{_mt(design_bus.title)}*"), "")
         for head, _, grp, place in _groups(b):
             if head is None:
                 self.group(grp, place, "###")
                 continue
-            self.w(f"### {_mt(head)}: {_MARK[grp.status]}", "")
+            self.w(*_heading_lines("###", head, f": {_MARK[grp.status]}"))
             route = _route_of(design_bus, place)
             if route:
                 self.w(*_fenced("\n".join(route)), "")
@@ -280,7 +318,8 @@ class _Markdown:
                "provenance* is not stated on the value itself: it is the provenance of the part "
                "file that set it."), "")
         for ref, p in self.r.parts.items():
-            self.w(f"### {_title(_part_heading(ref, p))}", "")
+            self.w(*_heading_lines("###", f"{ref}: {p.get('part')}",
+                                   detail=p.get("title") or None))
             for k, v in _part_facts(p):
                 self.w(*_wrapped(f"{k}: {_mt(v)}", "- "))
             self.w("")
