@@ -181,3 +181,65 @@ route = [
         else:
             assert wave.undershoot == pytest.approx(max(v_lo - got["vext"], 0.0),
                                                     abs=0.02 * VDD)
+
+
+def test_open_drain_chain_of_sections_matches_ngspice(tmp_path):
+    # a trace, a section of no length and 1 m of the test cable (pp-cable, invented), the
+    # sink's own pin at its point: the chain of two points the engine solves it as
+    path = tmp_path / "d.toml"
+    path.write_text(f"""format = "pinlib.design/1"
+title = "open-drain chain against ngspice (invented)"
+library = ["{DATA.as_posix()}"]
+
+[[bus]]
+id = "irq"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  {{ ref = "U1", part = "pp-ctrl", role = "controller", pin = "irq" }},
+  {{ ref = "U2", part = "pp-periph", pin = "irq" }},
+]
+lines.irq = {{ pullup = "470 Ω", sections = [
+  {{ length = "4 cm", capacitance = "1.2 pF/cm", delay = "60 ps/cm" }},
+  {{ length = "0 cm", capacitance = "1.2 pF/cm", delay = "60 ps/cm" }},
+  {{ part = "pp-cable", length = "1 m" }},
+] }}
+""", encoding="utf-8")
+    d = load_design(path)
+    (li,) = line_inputs(d.bus("irq"), d)
+    a = li.analyse()
+    case = a.cases["U2"]
+    assert case.distributed and a.result.figures["model"].value == "distributed"
+    drv = case.driver
+    (rx,) = [p for p in a.loads if p.ref == "U1"]
+    r_sink = float(drv.pin.v_ol.at(VDD)) / float(drv.pin.i_ol.at())
+    for edge in ("rise", "fall"):
+        wave = case.wave(edge)
+        v_lo, v_hi = case.v_low, case.v_high
+        body = ["* open-drain chain", f"VP rail 0 {VDD}", "RP rail n0 470",
+                f"CD n0 0 {drv.c_in:.9g}", f"ILD n0 0 {float(drv.pin.leakage.at()):.9g}"]
+        node, k, c_end = "n0", 0, rx.c_in
+        for st in a.stretches:
+            if st.td > 0:
+                k += 1
+                body.append(f"T{k} {node} 0 n{k} 0 Z0={st.z0:.9g} TD={st.td:.9g}")
+                node = f"n{k}"
+            else:
+                c_end += st.c
+        body += [f"CR {node} 0 {c_end:.9g}", f"ILR {node} 0 {float(rx.pin.leakage.at()):.9g}"]
+        if edge == "fall":
+            body += [f"VS src 0 PWL(0 {v_hi:.9g} 1e-9 0)", f"RS n0 src {r_sink:.9g}"]
+            a_, b_, sense = 0.9, 0.1, "FALL"
+        else:
+            body += ["VC ctl 0 PWL(0 1 1e-12 0)", f"RS n0 sw {r_sink:.9g}",
+                     "S1 sw 0 ctl 0 swm", ".model swm sw vt=0.5 vh=0 ron=1e-6 roff=1e15"]
+            a_, b_, sense = 0.1, 0.9, "RISE"
+        t_stop = float(wave.t[-1])
+        step = min(wave.t_edge / 1000, min(st.td for st in a.stretches if st.td > 0) / 20)
+        deck = "\n".join(body + [
+            f".tran {step:.6g} {t_stop:.6g} 0 {step:.6g}",
+            f".meas tran ta WHEN v({node})={v_lo + a_ * (v_hi - v_lo):.9g} {sense}=1",
+            f".meas tran tb WHEN v({node})={v_lo + b_ * (v_hi - v_lo):.9g} {sense}=1",
+            ".end"])
+        got = run_deck(deck, ["ta", "tb"])
+        assert wave.t_edge == pytest.approx(got["tb"] - got["ta"], rel=EDGE_REL), edge
