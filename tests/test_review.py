@@ -1376,3 +1376,14 @@ def test_markdown_headings_keep_to_80_columns(built, tmp_path):
     assert "…" in bus and bus.endswith((": PASS", ": WARN", ": FAIL")), bus
     at = lines.index(bus)
     assert _flat(" ".join(lines[at + 1:at + 5])).startswith(f"Bus {long_id} (i2c)")
+
+
+def test_markdown_wrapping_keeps_a_long_word_whole():
+    # a viewer joins a paragraph's lines with a space: a part id or path cut at the
+    # width read as two words; it stays whole on a line of its own, past the width
+    from pinlib.present.review.markdown import _wrapped
+
+    long_id = "team-parts/" + "x" * 90 + "/sensor-part.toml"
+    lines = _wrapped(f"the part {long_id} states no i_ol here", "- ")
+    assert any(long_id in ln for ln in lines), lines
+    assert all(len(ln) <= 80 for ln in lines if long_id not in ln)

@@ -22,18 +22,20 @@ NBSP = "\u00a0"
 
 
 def wrap(text: str, cols: int, indent: str = "", subsequent: str = "    ", *,
-         break_long: bool = False) -> list[str]:
+         break_long: bool = False, whole_long: bool = False) -> list[str]:
     """One logical line wrapped to ``cols`` characters, continuation lines indented by
     ``subsequent`` (after ``indent``).  A word too long for its line (a file's path,
     which a reader copies) goes on a line of its own, whole and unindented where it fits
     the width so, else broken after a ``/`` (:func:`_path_pieces`), never inside a
-    name; with ``break_long=True`` it is broken where the width falls instead."""
+    name; with ``break_long=True`` it is broken where the width falls instead, and with
+    ``whole_long=True`` it is left whole past the width (Markdown, whose viewers join
+    the lines of a paragraph with a space: a word cut in two would read as two)."""
     glued = _GLUE.sub(NBSP, text)
     width = max(10, cols)
     lines = textwrap.wrap(glued, width, initial_indent=indent,
                           subsequent_indent=indent + subsequent, break_on_hyphens=False,
                           break_long_words=break_long)
-    if not break_long:
+    if not break_long and not whole_long:
         # textwrap puts a word too long for its line alone on one: there, unindented
         lines = [piece for ln in lines
                  for piece in ([ln] if len(ln) <= width else _path_pieces(ln.strip(), width))]

@@ -122,13 +122,14 @@ def _fenced(text: str) -> list[str]:
 def _wrapped(text: str, marker: str = "", hang: str | None = None) -> list[str]:
     """Markdown text (escaped already) as lines of at most :data:`TEXT_WIDTH` characters:
     the first after ``marker`` (``"- "``, ``"> "``, ``"3. "``), the others after ``hang``
-    (spaces as wide as the marker by default), a number kept with its unit.  A line that
+    (spaces as wide as the marker by default), a number kept with its unit, a word longer
+    than a line kept whole on a line of its own.  A line that
     would start a block where it now begins (``- x``, ``1. x``, ``# x``, ``---``) is made
     plain as :func:`_mt` makes a text's start, so wrapping never changes the structure."""
     hang = " " * len(marker) if hang is None else hang
     room = TEXT_WIDTH - max(len(marker), len(hang)) - 1   # - 1: room for that escape
     out = []
-    for i, line in enumerate(wrap(text, room, "", "")):
+    for i, line in enumerate(wrap(text, room, "", "", whole_long=True)):
         if i:
             line = _MD_LINE_START.sub(_plain_start, line, count=1)
         out.append((hang if i else marker) + line)
