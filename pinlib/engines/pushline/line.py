@@ -551,7 +551,12 @@ def _add_checks(a: LineAnalysis, res: LineResult, clock, clock_line, warn_margin
                 "system (losses, skew between lines) outside pinlib")))
     if a.line.series_resistor == "auto":
         res.add(_termination_check(a))
-    pullups = {d.ref: open_drain_pullup(a.line, a.loads, d) for d in a.drivers}
+    pulled = a.line.pullup is not None or any(
+        p.pin.pullup is not None or (p.device.internal_pullups and
+                                     p.pin.pullup_internal is not None) for p in a.loads)
+    # (a line without pull-ups, as every SPI line, in one pass: not one per driver)
+    pullups = {d.ref: open_drain_pullup(a.line, a.loads, d) for d in a.drivers} if pulled \
+        else {}
     sinks, notes = sink_checks(a, pullups, warn_margin)
     for c in sinks:
         res.add(c)
