@@ -11,6 +11,7 @@ import eseries
 import pytest
 from spice import have_ngspice, run_deck
 
+from pinlib.core.quantity import format_si
 from pinlib.engines import opendrain
 from pinlib.engines.dispatch import check_design
 from pinlib.engines.opendrain.inputs import value_source
@@ -1291,3 +1292,53 @@ def test_default_sink_of_a_rail_reaching_2_v_is_vol2(tmp_path):
     # derived: (2.53 - 0.4)/3 mA = 710 Ω
     res = bus_result(tmp_path, one_bus(supply="2.3 V", vtol="10 %", devices=devices))
     assert fig(res, "rp_min") == pytest.approx(710.0, abs=0.05)
+
+
+def test_leakage_that_slows_the_rise_is_noted(tmp_path):
+    # ten pins leaking 1 µA each (t-ctrl-3v3 and nine t-target, invented test parts)
+    # through 10 kΩ hold the high level at 3.3 - 0.1 = 3.2 V: the RC rise toward it takes
+    # Rp Cb ln((3.2 - 0.99)/(3.2 - 2.31)) between 30 and 70 % of the rail (derived: one
+    # pole toward the settled level), against the specification's 0.8473 Rp Cb
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }'] + [
+        f'{{ ref = "U{i}", part = "t-target" }}' for i in range(2, 11)]
+    res = bus_result(tmp_path, one_bus(mode="standard", pullup="10 kΩ", devices=devices))
+    cb = fig(res, "bus_capacitance")
+    t = 10e3 * cb * math.log((3.2 - 0.99) / (3.2 - 2.31))
+    assert res.check("rise-time").value == pytest.approx(0.8473 * 10e3 * cb, rel=1e-3)
+    (note,) = [n for n in res.notes if n.startswith("SDA: the pins' leakage")]
+    assert format_si(t, "s") in note and "3.2 V" in note
+    assert format_si(t / (math.log(7 / 3) * 10e3 * cb) - 1, "%") in note
+    # with 2.2 kΩ the level is 3.278 V and the rise 1.4 % longer: no note
+    res = bus_result(tmp_path, one_bus(mode="standard", pullup="2.2 kΩ", devices=devices))
+    assert not any("pins' leakage" in n for n in res.notes)
+
+
+def test_rise_with_leakage_physics():
+    from pinlib.physics.pullup import rise_time, rise_time_with_leakage
+
+    # derived: no leakage is the specification's formula (UM10204 rev. 6 §7.1)
+    assert rise_time_with_leakage(4.7e3, 100e-12, 3.3, 0.0) == pytest.approx(
+        rise_time(4.7e3, 100e-12), rel=1e-12)
+    # derived: 20 µA through 11.8 kΩ leaves 3.064 V: ln(2.074/0.754) = 1.0118 RC
+    assert rise_time_with_leakage(11.8e3, 100e-12, 3.3, 20e-6) == pytest.approx(
+        11.8e3 * 100e-12 * math.log((3.3 - 0.236 - 0.99) / (3.3 - 0.236 - 2.31)), rel=1e-12)
+    # a level short of 70 %: the line never gets there
+    assert rise_time_with_leakage(1e6, 78e-12, 3.3, 22e-6) == math.inf
+
+
+@spice
+@needs_ngspice
+def test_rise_with_leakage_against_ngspice():
+    # the circuit itself: 11.8 kΩ to 3.3 V, 100 pF, 20 µA drawn to ground (invented
+    # values), released from 0 V at t = 0; ngspice's 30-70 % time against the formula
+    from pinlib.physics.pullup import rise_time_with_leakage
+
+    deck = "\n".join([
+        "* pull-up rise with leakage", "VP rail 0 3.3", "RP rail n 11.8k", "C1 n 0 100p",
+        "IL n 0 20u", "VC ctl 0 PWL(0 1 1p 0)", "S1 n 0 ctl 0 swm",
+        ".model swm sw vt=0.5 vh=0 ron=1e-6 roff=1e15",
+        ".tran 1n 20u 0 1n",
+        ".meas tran ta WHEN v(n)=0.99 RISE=1", ".meas tran tb WHEN v(n)=2.31 RISE=1", ".end"])
+    got = run_deck(deck, ["ta", "tb"])
+    assert rise_time_with_leakage(11.8e3, 100e-12, 3.3, 20e-6) == pytest.approx(
+        got["tb"] - got["ta"], rel=2e-3)

@@ -32,6 +32,7 @@ from pinlib.physics.pullup.edges import (  # noqa: F401
     capacitance_from_rise,
     fall_time_bound,
     rise_time,
+    rise_time_with_leakage,
     scl_frequency,
 )
 from pinlib.physics.pullup.inputs import (  # noqa: F401
@@ -66,6 +67,7 @@ __all__ = [
     "high_level",
     "static_power",
     "rise_time",
+    "rise_time_with_leakage",
     "fall_time_bound",
     "pullup_margins",
     "cb_limit",

@@ -11,7 +11,8 @@ from pinlib.core.quantity import format_si
 from pinlib.physics.pullup.inputs import _arr, _non_negative, _out, _positive
 from pinlib.physics.rc import RISE_30_70
 
-__all__ = ["rise_time", "fall_time_bound", "scl_frequency", "capacitance_from_rise"]
+__all__ = ["rise_time", "rise_time_with_leakage", "fall_time_bound", "scl_frequency",
+           "capacitance_from_rise"]
 
 
 def _log1p_over(x: np.ndarray) -> np.ndarray:
@@ -54,6 +55,53 @@ def rise_time(rp, cb, rise_factor=RISE_30_70):
 def _rise_time(rp, cb, rise_factor):
     """:func:`rise_time` without its input checks."""
     return rise_factor * rp * cb
+
+
+def rise_time_with_leakage(rp, cb, vdd, leakage, lo=0.3, hi=0.7):
+    """Rise time of a line charged through its pull-up while its pins leak to ground.
+
+    Parameters
+    ----------
+    rp : float or array_like
+        Pull-up resistance. [Ω]
+    cb : float or array_like
+        Bus capacitance. [F]
+    vdd : float or array_like
+        Pull-up rail. [V]
+    leakage : float or array_like
+        The pins' leakage together, out of the line. [A]
+    lo, hi : float, optional
+        The edge's ends as fractions of ``vdd`` (30 % and 70 %, UM10204, by default). [1]
+
+    Returns
+    -------
+    float or numpy.ndarray
+        ``rp · cb · ln((V∞ − lo·vdd) / (V∞ − hi·vdd))`` with ``V∞ = vdd − leakage · rp``,
+        the level the line settles at; ``inf`` where ``V∞`` does not pass ``hi · vdd``
+        (the line never gets there). [s]
+
+    Notes
+    -----
+    The line's node is ``cb dV/dt = (vdd − V)/rp − I``: a single pole of time constant
+    ``rp · cb`` toward ``V∞``, so the time between two levels is ``rp cb ln`` of the ratio
+    of their distances from ``V∞``. With no leakage it is the specification's
+    ``0.8473 rp cb`` (UM10204 rev. 6 §7.1); the specification's formula leaves leakage
+    out.
+
+    Examples
+    --------
+    >>> round(float(rise_time_with_leakage(2200.0, 200e-12, 3.3, 0.0)) * 1e9, 1)
+    372.8
+    """
+    rp = _non_negative(rp, "rp", "[Ω]")
+    cb = _non_negative(cb, "cb", "[F]")
+    vdd = _positive(vdd, "vdd", "[V]")
+    leakage = _non_negative(leakage, "leakage", "[A]")
+    v_end = vdd - leakage * rp
+    a, b = v_end - lo * vdd, v_end - hi * vdd
+    with np.errstate(divide="ignore", invalid="ignore"):
+        t = np.where(b > 0, rp * cb * np.log(np.where(b > 0, a / b, 1.0)), np.inf)
+    return _out(t)
 
 
 def _current_source_fall(rp, cb, vdd, i, v_from, v_to):
