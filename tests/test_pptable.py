@@ -16,7 +16,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from hypothesis import given
+from hypothesis import example, given
 from hypothesis import strategies as st
 
 from pinlib.engines import ppbatch as ppb
@@ -211,6 +211,7 @@ def test_array_margins_and_statuses_follow_the_scalar_rules(value, limit, warn):
 
 @given(value=st.floats(allow_nan=True, allow_infinity=True, width=64),
        limit=st.floats(allow_nan=False, allow_infinity=False, width=64))
+@example(value=1.7976931348623157e308, limit=-9.9792015476736e291)  # the difference overflows
 def test_one_value_margins_equal_the_arrays(value, limit):
     # min_margin / max_margin / at_limit of one value take Python floats (no error
     # state to set): the same numbers as the array of one

@@ -291,7 +291,9 @@ def min_margin(value, limit):
     import numpy as np
 
     value, limit = np.asarray(value, dtype=float), np.asarray(limit, dtype=float)
-    return _array_margin(value - limit, limit, lambda: value >= 0)
+    with np.errstate(over="ignore", invalid="ignore"):  # as float: inf, NaN
+        excess = value - limit
+    return _array_margin(excess, limit, lambda: value >= 0)
 
 
 def max_margin(value, limit):
@@ -299,7 +301,9 @@ def max_margin(value, limit):
     import numpy as np
 
     value, limit = np.asarray(value, dtype=float), np.asarray(limit, dtype=float)
-    return _array_margin(limit - value, limit, lambda: value <= 0)
+    with np.errstate(over="ignore", invalid="ignore"):  # as float: inf, NaN
+        excess = limit - value
+    return _array_margin(excess, limit, lambda: value <= 0)
 
 
 def check_max(id, value, limit, unit, source, message, *, warn_margin=0.10, **kw) -> Check:

@@ -339,7 +339,9 @@ def at_limit(x, limit):
     if isinstance(x, float) and isinstance(limit, float):  # one value: no arrays to make
         return limit if abs(x - limit) <= AT_LIMIT * abs(limit) else x
     x, limit = np.asarray(x, dtype=float), np.asarray(limit, dtype=float)
-    return np.where(np.abs(x - limit) <= AT_LIMIT * np.abs(limit), limit, x)[()]
+    with np.errstate(over="ignore", invalid="ignore"):  # as float: inf, NaN
+        near = np.abs(x - limit) <= AT_LIMIT * np.abs(limit)
+    return np.where(near, limit, x)[()]
 
 
 def supply_margin(lo, hi, s_min, s_max):
