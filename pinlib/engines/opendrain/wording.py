@@ -141,8 +141,7 @@ def line(w: Words, ln: LineInputs) -> None:
                  f"{up} rise time {_f(bc.value[0], 's')} ({defin}, Rp {_f(rp_hi, 'Ω')} at "
                  f"+{tol:.0%}, Cb {_f(ln.cb, 'F')}, factor {ln.rise_factor:.4g})", subject=up,
                  details={"definition": lim.rise_definition, "factor": ln.rise_factor}))
-    if lim.rise_definition == "30-70":
-        _leaky_rise_note(w, ln, rp_hi, float(bc.value[0]))
+    _leaky_rise_note(w, ln, rp_hi, defin)
     far = w.far_links()
     behind = any(True for _ in far_drivers(far, w.ctx.collected, ln.signal))
     local = [d for d in ln.drivers if d.offset is None]
@@ -167,29 +166,33 @@ def line(w: Words, ln: LineInputs) -> None:
 LEAKY_RISE_NOTED = 0.05
 
 
-def _leaky_rise_note(w: Words, ln: LineInputs, rp_hi: float, t_formula: float) -> None:
-    """A note where the pins' leakage through the pull-up lengthens the 30-70 % rise by
-    :data:`LEAKY_RISE_NOTED` or more (``physics.pullup.rise_time_with_leakage``, at the
-    rail's minimum and the pull-up at its top, the rise-time check's corner), or keeps
-    the line from reaching 70 %: the check keeps the specification's formula, which
-    leaves leakage out."""
+def _leaky_rise_note(w: Words, ln: LineInputs, rp_hi: float, defin: str) -> None:
+    """A note where the pins' leakage through the pull-up lengthens the rise between the
+    bus's measuring levels (``defin``) by :data:`LEAKY_RISE_NOTED` or more
+    (``physics.pullup.rise_time_with_leakage``, at the rail's minimum, where the drop is
+    the largest share of it, and the pull-up at its top, the rise-time check's), or keeps
+    the line from reaching the upper level: the check keeps the specification's formula,
+    which leaves leakage out."""
     vdd = float(w.seg_in.vdd[0])
-    if not ln.leakage > 0 or not t_formula > 0:
+    if not ln.leakage > 0 or not ln.cb > 0:
         return
-    t = float(rise_time_with_leakage(rp_hi, ln.cb, vdd, ln.leakage))
+    v_lo, v_hi = (float(x) for x in w.lim.measuring_levels(vdd))
+    lo, hi = v_lo / vdd, v_hi / vdd
+    t0 = float(rise_time_with_leakage(rp_hi, ln.cb, vdd, 0.0, lo, hi))
+    t = float(rise_time_with_leakage(rp_hi, ln.cb, vdd, ln.leakage, lo, hi))
     up = ln.signal.upper()
     v_end = vdd - ln.leakage * rp_hi
     head = (f"{up}: the pins' leakage {_f(ln.leakage, 'A')} through the pull-up "
             f"{_f(rp_hi, 'Ω')} holds the line's high level at {_f(max(v_end, 0.0), 'V')} "
             f"on the rail's minimum {_f(vdd, 'V')}")
     if not math.isfinite(t):
-        w.grp.notes.append(f"{head}, short of 70 % of it: the line never completes the "
-                           "rise the rise-time check times by the specification's formula "
-                           "(which leaves leakage out); see v-oh")
-    elif t >= t_formula * (1 + LEAKY_RISE_NOTED):
-        w.grp.notes.append(f"{head}, so its 30–70 % rise takes {_f(t, 's')}, "
-                           f"{_f(t / t_formula - 1, '%')} more than the specification's "
-                           "formula that the rise-time check keeps (it leaves leakage out)")
+        w.grp.notes.append(f"{head}, short of {_f(v_hi, 'V')}: the line never completes "
+                           "the rise the rise-time check times by the specification's "
+                           "formula (which leaves leakage out); see v-oh")
+    elif t0 > 0 and t >= t0 * (1 + LEAKY_RISE_NOTED):
+        w.grp.notes.append(f"{head}, so its rise ({defin}) takes {_f(t, 's')}, "
+                           f"{_f(t / t0 - 1, '%')} more than the specification's formula "
+                           "that the rise-time check keeps (it leaves leakage out)")
 
 
 def _window(w: Words, ln: LineInputs, r_eff: float, rp_lo: float) -> Check:
