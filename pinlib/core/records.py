@@ -45,6 +45,7 @@ import typing
 
 from pinlib.core import messages as M
 from pinlib.core.errors import PinlibError
+from pinlib.core.labels import and_list
 
 __all__ = ["Record", "RecordError", "Issue", "Involving", "Field", "Convert", "Rule", "WrittenAs",
            "field", "after", "check"]
@@ -454,8 +455,7 @@ _SIMPLE = {str: _of_kind({str}, M.NOT_TEXT), bool: _of_kind({bool}, M.NOT_TRUE_O
 def _literal(allowed):
     kinds = {type(a) for a in allowed}
     choices = frozenset(allowed)
-    shown = [repr(a) for a in allowed]
-    expected = shown[0] if len(shown) == 1 else ", ".join(shown[:-1]) + " or " + shown[-1]
+    expected = and_list((repr(a) for a in allowed), "or")
 
     def conv(v, loc, issues):
         if type(v) in kinds and v in choices:
