@@ -1342,3 +1342,12 @@ def test_rise_with_leakage_against_ngspice():
     got = run_deck(deck, ["ta", "tb"])
     assert rise_time_with_leakage(11.8e3, 100e-12, 3.3, 20e-6) == pytest.approx(
         got["tb"] - got["ta"], rel=2e-3)
+
+
+def test_a_tolerance_under_one_percent_keeps_its_digits(tmp_path):
+    # a 0.5 % pull-up read "Rp 2.21 kΩ at +0%" and "(±0%)": a percent format without
+    # decimals (0.5 rounds to the even 0)
+    res = bus_result(tmp_path, one_bus(pullup="2.2 kΩ", ptol="0.5 %"))
+    assert "at +0.5 %" in res.check("rise-time").message
+    window = [c for c in res.checks if c.id == "pullup-window"][0]
+    assert "0.5 %" in window.message and "0%" not in window.message

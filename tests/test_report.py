@@ -389,11 +389,11 @@ def test_the_warning_band_says_a_rating_has_none(capsys, tmp_path):
     rule = ("a rating — a supply range, a clock limit, a highest input voltage — passes up to "
             "its limit")
     assert main(["check", str(gpio), "--detail"]) == 0
-    assert f"(warn below 10% margin; {rule})" in " ".join(capsys.readouterr().out.split())
+    assert f"(warn below 10 % margin; {rule})" in " ".join(capsys.readouterr().out.split())
     for kind, name in (("--md", "r.md"), ("--html", "r.html")):
         assert main(["report", str(gpio), kind, str(tmp_path / name)]) == 0
         text = " ".join((tmp_path / name).read_text(encoding="utf-8").split())
-        assert f"(warning below 10% margin; {rule})" in text, kind
+        assert f"(warning below 10 % margin; {rule})" in text, kind
 
 
 def test_the_detail_command_of_a_long_path_pastes_whole_at_80_columns():

@@ -14,6 +14,7 @@ import textwrap
 
 from pinlib.core import messages as M
 from pinlib.core.labels import check_label, humanize, note_label
+from pinlib.core.quantity import format_si
 from pinlib.model.result import CAUTION, BusResult, Group, margin_text
 from pinlib.present.terminal import status_word, wrap
 from pinlib.present.values import counts, figure_cells, format_value, with_fix
@@ -139,7 +140,7 @@ def detail_lines(result, cols: int) -> list[str]:
                 cols)
     n = counts(result)
     out += wrap(f"status: {status_word(result.status)} — {n['pass']} pass, {n['warn']} warn, "
-                f"{n['fail']} fail (warn below {result.warn_margin:.0%} margin; "
+                f"{n['fail']} fail (warn below {format_si(result.warn_margin, '%')} margin; "
                 f"{M.RATING_NO_WARN_BAND})", cols)
     for note in result.notes:
         out += wrap(f"note: {note}", cols)

@@ -164,7 +164,7 @@ def segment_notes(grp: Group, lim: OpenDrainLimits, seg_in: SegmentInputs, r_eff
                             "the figure 'Rise time, 10–90 %' is 10–90 % of VDD")
     if seg_in.auto:
         grp.notes.append(f"pull-up chosen from {seg_in.segment.pullup_series}: "
-                         f"{_f(seg_in.pullup, 'Ω')} (±{seg_in.tol:.0%}), the value with the "
+                         f"{_f(seg_in.pullup, 'Ω')} (±{_f(seg_in.tol, '%')}), the value with the "
                          "largest smaller margin to Rp(min) and Rp(max) on both lines")
     for sig, ln in seg_in.lines.items():
         if ln.part_pullups:

@@ -139,7 +139,7 @@ def line(w: Words, ln: LineInputs) -> None:
     bc = w.take("rise-time")
     grp.add(make(bc, lim.source_edges,
                  f"{up} rise time {_f(bc.value[0], 's')} ({defin}, Rp {_f(rp_hi, 'Ω')} at "
-                 f"+{tol:.0%}, Cb {_f(ln.cb, 'F')}, factor {ln.rise_factor:.4g})", subject=up,
+                 f"+{_f(tol, '%')}, Cb {_f(ln.cb, 'F')}, factor {ln.rise_factor:.4g})", subject=up,
                  details={"definition": lim.rise_definition, "factor": ln.rise_factor}))
     _leaky_rise_note(w, ln, rp_hi, defin)
     far = w.far_links()
@@ -224,11 +224,11 @@ def _window(w: Words, ln: LineInputs, r_eff: float, rp_lo: float) -> Check:
                   "than the weakest sink's rating, so no pull-up on this segment is large "
                   "enough")
         chk = Check("pullup-window", "fail", rp_lo, None, "Ω", None, src,
-                    f"{up} pull-up {shown} at −{tol:.0%}: {_f(rp_lo, 'Ω')}; "
+                    f"{up} pull-up {shown} at −{_f(tol, '%')}: {_f(rp_lo, 'Ω')}; "
                     f"{reason}", subject=up, details=details, reason=reason)
     else:
         sign = "−" if m_lo <= m_hi or not math.isfinite(ln.rp_max) else "+"
-        chk = make(bc, src, f"{up} pull-up {shown} at {sign}{tol:.0%}: {_f(value, 'Ω')} "
+        chk = make(bc, src, f"{up} pull-up {shown} at {sign}{_f(tol, '%')}: {_f(value, 'Ω')} "
                    f"against the window {window}", subject=up, details=details)
     if chk.status == "fail":
         _failed(chk, window_advice(lim, seg_in, ln, m_lo, m_hi))
@@ -290,7 +290,7 @@ def _leakage_fix(w: Words, ln: LineInputs, rp_hi: float, short: float) -> str:
     if not r_ok > 0:
         return ""
     top = r_ok / (1 + tol)
-    text = (f"an effective pull-up of at most {_f(top, 'Ω')} (at +{tol:.0%}: the leakage "
+    text = (f"an effective pull-up of at most {_f(top, 'Ω')} (at +{_f(tol, '%')}: the leakage "
             f"{_f(ln.leakage, 'A')} drops the high level by ΣI·Rp)")
     if math.isfinite(ln.rp_min) and top < ln.rp_min / (1 - tol):
         text += (f", below Rp(min) {_f(ln.rp_min / (1 - tol), 'Ω')}: no pull-up meets both; "
@@ -321,7 +321,7 @@ def _sink(w: Words, ln: LineInputs, far: list) -> None:
                    key=lambda j: -(currents[j] / ln.drivers[bc.basis[j]].i_ol))
     extra = " and the far side's pull-up through the translator" if far else ""
     chk = make(bc, d.source_i,
-               f"{up} sink current {_f(bc.value[0], 'A')} (pull-up at −{tol:.0%}, rail at its "
+               f"{up} sink current {_f(bc.value[0], 'A')} (pull-up at −{_f(tol, '%')}, rail at its "
                f"maximum{extra}) against {d.tap.label}'s rating {_f(d.i_ol, 'A')} at "
                f"{_f(float(d.v_ol[1]), 'V')}", subject=f"{up} {d.tap.label}",
                details={"drivers": {ln.drivers[bc.basis[j]].tap.label: currents[j]
@@ -331,7 +331,7 @@ def _sink(w: Words, ln: LineInputs, far: list) -> None:
                      "alone draw more than the weakest sink's rating (see pullup-window)")
     elif chk.status == "fail":
         _failed(chk, f"raise the effective pull-up to at least "
-                     f"{_f(ln.rp_min / (1 - tol), 'Ω')} (Rp(min) at −{tol:.0%})")
+                     f"{_f(ln.rp_min / (1 - tol), 'Ω')} (Rp(min) at −{_f(tol, '%')})")
     w.grp.add(chk)
 
 
@@ -373,7 +373,7 @@ def _fall(w: Words, ln: LineInputs, far: list) -> None:
     d = w.ctx.collected[s_i].lines[ln.signal].drivers[j]
     via = "" if s_i == seg_in.index else f" via {bc.names[k].rsplit(' via ', 1)[1]}"
     text, details = fall_basis(lim, d, info, c, ln.cb)
-    basis = (f"driver {d.tap.label}{via}: {text}; pull-up at −{tol:.0%}, Cb {_f(ln.cb, 'F')}, "
+    basis = (f"driver {d.tap.label}{via}: {text}; pull-up at −{_f(tol, '%')}, Cb {_f(ln.cb, 'F')}, "
              f"{_CORNERS[c]}")
     if math.isfinite(bc.value[0]):
         chk = make(bc, lim.source_edges, f"{up} fall time at most {_f(bc.value[0], 's')} "

@@ -9,6 +9,7 @@ import re
 from pinlib import __version__
 from pinlib.core import messages as M
 from pinlib.core.labels import check_label, note_label
+from pinlib.core.quantity import format_si
 from pinlib.model.result import CAUTION, BusResult, Group
 from pinlib.present.review.draw import ReviewChart, _slug
 from pinlib.present.review.montecarlo import _MC_HEAD, _mc_cells, _mc_summary
@@ -130,7 +131,7 @@ class _Html:
         self.w(f'<p class="meta">Overall: {_badge(res.status)} the design '
                f"{_e(_STATUS_WORD[res.status])} — {counts['pass']} checks pass, "
                f"{counts['warn']} warn, {counts['fail']} fail (warning below "
-               f"{res.warn_margin:.0%} margin; {_e(M.RATING_NO_WARN_BAND)}).</p>",
+               f"{format_si(res.warn_margin, '%')} margin; {_e(M.RATING_NO_WARN_BAND)}).</p>",
                "</header>")
         self.nav()
         self.w("<main>")

@@ -10,6 +10,7 @@ import textwrap
 from pinlib import __version__
 from pinlib.core import messages as M
 from pinlib.core.labels import check_label, note_label
+from pinlib.core.quantity import format_si
 from pinlib.core.wrapping import wrap
 from pinlib.model.result import CAUTION, BusResult, Group
 from pinlib.present.report import fit
@@ -207,7 +208,8 @@ class _Markdown:
         self.w(*_wrapped(
             f"**Overall: {_MARK[res.status]}** — the design {_STATUS_WORD[res.status]}: "
             f"{counts['pass']} checks pass, {counts['warn']} warn, {counts['fail']} fail "
-            f"(warning below {res.warn_margin:.0%} margin; {M.RATING_NO_WARN_BAND})."), "")
+            f"(warning below {format_si(res.warn_margin, '%')} margin; "
+            f"{M.RATING_NO_WARN_BAND})."), "")
         self.w("## Summary", "")
         rows = []
         for b in res.results():

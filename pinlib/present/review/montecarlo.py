@@ -5,6 +5,7 @@ run's summary sentences and the histograms of the checks with the lowest pass fr
 from __future__ import annotations
 
 from pinlib.core.labels import check_label, sampled_check_label
+from pinlib.core.quantity import format_si
 from pinlib.model.result import margin_order, signed_margin_text
 from pinlib.present.review.draw import _draw
 from pinlib.studies.whatif.sensitivity import beyond_rounding
@@ -148,7 +149,7 @@ def _mc_summary(mc) -> list[str]:
         out.append(", ".join(bits) + ".")
     conf, method = _get(mc, "confidence"), _get(mc, "method")
     if conf is not None and method:
-        out.append(f"Pass fractions with {float(conf):.0%} {method}s.")
+        out.append(f"Pass fractions with {format_si(float(conf), '%')} {method}s.")
     board = _get(mc, "board")
     if board is not None and hasattr(board, "fraction"):
         out.append(f"Every sampled bus passes on {_yield(board)} of the boards.")

@@ -8,6 +8,7 @@ from dataclasses import field
 import numpy as np
 
 from pinlib.core.labels import sampled_check_label
+from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
 from pinlib.model.result import json_number, margin_order, signed_margin_text
 from pinlib.studies.whatif.sensitivity import SENSITIVITY_FLOOR, beyond_rounding
@@ -192,7 +193,7 @@ class McResult:
     def format_text(self, limit: int | None = 12) -> str:
         """The run for people: yields, then the checks with the fewest passing boards
         and lowest margins (``limit`` of them; None for all)."""
-        pct = f"{self.confidence:.0%}"
+        pct = format_si(self.confidence, '%')
         lines = [f"Monte Carlo: {self.n} boards, {self.distribution} within each tolerance"
                  f"{' (tolerance = 3σ)' if self.distribution == 'normal' else ''}, seed "
                  f"{self.seed}; pass fractions with {pct} {self.method}s"]
