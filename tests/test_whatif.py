@@ -931,3 +931,34 @@ def test_a_gpio_line_named_as_its_bus_is_named_once(capsys, monkeypatch):
     out = " ".join(capsys.readouterr().out.split())
     assert "reset reset" not in out
     assert "reset pull-up ±1 %" in out and "reset Level high U1" in out
+
+
+def test_corners_never_take_a_board_without_the_check_for_its_worst(monkeypatch):
+    # a check a corner board does not have reads, in a push-pull batch, as a NaN margin
+    # that passes; the corner search read NaN as the worst, so such a check was listed at
+    # that board as PASS with no margin. Here the engine drops sink-current on every
+    # board but the nominal one (a stand-in: no check of today is absent at some
+    # corners): the study must give the check as designed, at no corner
+    from dataclasses import replace as dc_replace
+
+    from pinlib.engines import ppbatch
+    from pinlib.studies.whatif.tolerances import _nominal
+
+    design = load_design(ROOT / "workbooks" / "designs" / "gpio-reset-board.toml")
+    nominal = _nominal(design)
+    real = ppbatch.pp.evaluate_board
+
+    def without_sink(bus, d):
+        res = real(bus, d)
+        lines = [dc_replace(ln, checks=[c for c in ln.checks if c.id != "sink-current"])
+                 for ln in res.lines]
+        return dc_replace(res, lines=lines)
+
+    monkeypatch.setattr(ppbatch.pp, "evaluate_board", without_sink)
+    got = whatif.corners(design, results=nominal)
+    (row,) = [c for c in got.checks if c.id == "sink-current"]
+    (nom,) = [c for ln in nominal["reset"].lines for c in ln.checks
+              if c.id == "sink-current"]
+    assert row.status == nom.status == "pass" and row.corner == []
+    assert row.margin == nom.margin and row.value == nom.value
+    assert all(math.isfinite(g) for c in got.checks for _, _, g in c.corner)

@@ -146,11 +146,22 @@ def _key(m):
 
 
 def _margins(bb: ob.BusBatch) -> np.ndarray:
-    """Every check's margin as columns, a yes/no check as 0 (pass) or −inf (fail)."""
+    """Every check's margin as columns, a yes/no check as 0 (pass) or −inf (fail); a
+    check a board does not have (a push-pull batch gives it a NaN margin and a pass,
+    :func:`pinlib.engines.ppbatch.build`) as +inf, so that no search takes that board
+    for its worst, where a NaN margin that fails (no number) is the worst, −inf."""
     cols = []
     for _, c in bb.checks():
-        cols.append(c.margin if c.margin is not None else np.where(c.status == 2, -np.inf, 0.0))
+        if c.margin is None:
+            cols.append(np.where(c.status == 2, -np.inf, 0.0))
+        else:
+            cols.append(np.where(_absent(c), np.inf, c.margin))
     return np.stack(cols, axis=1) if cols else np.empty((bb.n, 0))
+
+
+def _absent(c: ob.BatchCheck) -> np.ndarray:
+    """Where a batch check with margins is not on a board: a NaN margin that passes. [1]"""
+    return np.isnan(c.margin) & (np.asarray(c.status) == 0)
 
 
 def corners(design: Design, *, exhaustive_limit: int = EXHAUSTIVE_LIMIT,
@@ -232,11 +243,19 @@ def _bus_checks(bus, run, worst: np.ndarray, params: list[Parameter],
     out = []
     for j, (nm, c) in enumerate(zip(names, checks, strict=True)):
         ec = nm["engine"]
+        if c.margin is not None and _absent(c)[j] and ec is not None:
+            # on no board searched: the check as designed, at no corner
+            out.append(CornerCheck(
+                nm["name"], bus.id, nm["segment"], c.signal, c.id, c.unit, ec.source,
+                ec.margin, _number(ec.value), _number(ec.limit), ec.status, [], ec.status,
+                ec.margin, ec.margin_unit))
+            continue
         corner = []
         for i in np.argsort(-gains[j]) if k else []:
             g = gains[j, i]
             here = float(_margin(c, j))
-            if abs(g) > 1e-9 * max(1.0, abs(here) if math.isfinite(here) else 1.0):
+            if math.isfinite(g) and abs(g) > 1e-9 * max(
+                    1.0, abs(here) if math.isfinite(here) else 1.0):
                 corner.append((params[i].name, "+" if worst[j, i] > 0 else "−", float(g)))
         out.append(CornerCheck(
             nm["name"], bus.id, nm["segment"], c.signal, c.id, c.unit,
@@ -276,6 +295,11 @@ def _runner(bus, design: Design, params: list[Parameter], nominal, collected, ba
         scen = Sampled(u, params)
         return ppb.build(bus, design, scen.factors(bus), scen.n, nominal=nominal)
     return run_pp
+
+
+def _number(x) -> float | None:
+    """A check's value or limit as the corner rows hold them: a number, else None."""
+    return float(x) if isinstance(x, (int, float)) and not isinstance(x, bool) else None
 
 
 def _margin(c: ob.BatchCheck, j: int):
