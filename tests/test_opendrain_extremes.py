@@ -185,7 +185,7 @@ def test_a_pullup_inside_an_unbounded_window_passes_against_rp_min(tmp_path):
             assert c.status == "pass", c.message
             assert c.limit == pytest.approx(966.7, abs=0.05)
             assert c.margin == pytest.approx(2e3 / 966.67 - 1, rel=1e-4)
-            assert "at −0%" in c.message
+            assert "at −0 %" in c.message
 
 
 # --------------------------------------------------------------------- leakage of many pins
