@@ -156,3 +156,34 @@ def test_leakage_that_drops_the_whole_rail_is_refused_clearly(tmp_path):
     high = [c for c in ln.checks if c.id == "level-high"]
     assert high and all(c.status == "fail" for c in high)
     assert high[0].value == pytest.approx(VDD - 2e-6 * 1.5e6 * 1.01, rel=1e-9)
+
+
+def test_push_pull_on_a_lower_rail_than_the_pullup_is_noted(tmp_path):
+    # a 1.8 V microcontroller output (built-in class) on a line pulled up to the 3.3 V
+    # bus supply: while it drives high, (3.3 - 1.8) / 10 kΩ = 150 µA (derived) flows
+    # into its output; the part format has no injection limit, so a note, no check
+    path = tmp_path / "d.toml"
+    path.write_text("""format = "pinlib.design/1"
+title = "back current (invented)"
+
+[[bus]]
+id = "en"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-1v8", role = "controller", pin = "gpio_out", supply = "1.8 V" },
+  { ref = "U3", part = "fpga-io-3v3", pin = "gpio_in" },
+]
+lines.en = { LINE }
+""".replace("LINE", 'length = "5 cm", capacitance = "1 pF/cm", delay = "60 ps/cm", '
+                    'pullup = "10 kΩ", pullup_tolerance = "0 %"'), encoding="utf-8")
+    d = load_design(path)
+    (ln,) = evaluate_bus(d.bus("en"), d).lines
+    (note,) = [n for n in ln.notes if "flows into its output" in n]
+    assert "U1.gpio_out" in note and "150 µA" in note
+    # on its own rail, no such note
+    path.write_text(path.read_text(encoding="utf-8").replace(', supply = "1.8 V" }', ' }')
+                    .replace('part = "mcu-1v8"', 'part = "mcu-3v3"'), encoding="utf-8")
+    d = load_design(path)
+    (ln,) = evaluate_bus(d.bus("en"), d).lines
+    assert not any("flows into its output" in n for n in ln.notes)

@@ -47,6 +47,8 @@ def sink_checks(a: LineAnalysis, pullups: dict,
         rp, rail = pullups.get(d.ref, (None, None))
         if rp is None:
             continue
+        if d.pin.drive == "push-pull" and rail > d.vdd * (1 + 1e-6):
+            notes.append(_back_current_note(a, d, rp, rail))
         v_ol, i_ol = d.level("v_ol"), d.pin.i_ol
         i_ol = None if i_ol is None else float(i_ol.at())
         if v_ol is None or not i_ol:
@@ -59,6 +61,17 @@ def sink_checks(a: LineAnalysis, pullups: dict,
             continue
         checks.append(_check(a, d, rp, rail, v_ol, i_ol, warn))
     return checks, notes
+
+
+def _back_current_note(a: LineAnalysis, d: Endpoint, rp: float, rail: float) -> str:
+    """A push-pull driver on a lower rail than the line's pull-up: while it drives high,
+    the pull-up feeds current into its output, and so into its rail."""
+    into = (rail - d.vdd) / rp
+    return (f"{d.label} drives {a.signal} high to its own {_fmt(d.vdd, 'V')} rail against "
+            f"the pull-up {_fmt(rp, 'Ω')} to {_fmt(rail, 'V')}: about {_fmt(into, 'A')} "
+            "flows into its output, and its rail, while it is high (the part format "
+            "records no injection current to check it against); a pull-up to the "
+            "driver's rail, or an open-drain output, avoids it")
 
 
 def _check(a: LineAnalysis, d: Endpoint, rp: float, rail: float, v_ol: float,
