@@ -252,6 +252,49 @@ def test_bench_panel_takes_the_probe_out_of_a_measured_rise(builder):
     builder.set(rise_measured=0.0)
 
 
+def test_bench_panel_on_the_built_bus_gives_pinlib_measureds_answer(library, tmp_path,
+                                                                     capsys, monkeypatch):
+    """SDA of the bus built in the workbench takes the path a saved design's line
+    takes: compare_rise, the function ``pinlib measured`` calls, and the panel shows its
+    numbers."""
+    from pinlib.cli import main
+    from pinlib.engines.bench import compare_rise
+
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    b = BusBuilder(library, peripherals=["eeprom-i2c"], length=0.14)
+    b.set(pullup=2200.0, pullup_tolerance=0.01, rise_measured=300e-9, c_probe=10e-12,
+          levels=(0.3, 0.7))
+    got = b.bench
+    # derived: the same function as pinlib measured, on the design the controls describe
+    engine = compare_rise(b.design, "i2c", 300e-9, 10e-12, levels=(0.3, 0.7), signal="sda")
+    assert got.line is None and got.comparison == engine
+    assert (got.rp, got.cb, got.rise, got.cb_model) == (engine.rp, engine.cb,
+                                                        engine.rise_alone, engine.cb_model)
+    # and the command itself on the design saved from the panel, for the same reading
+    path = b.save(tmp_path / "built.toml")
+    code = main(["measured", str(path), "--bus", "i2c", "--rise", "300ns", "--probe", "10pF",
+                 "--levels", "30,70", "--json"])
+    cli = json.loads(capsys.readouterr().out)
+    assert cli == engine.to_json() and code == (0 if engine.verdict == "agrees" else 1)
+    # derived from UM10204 rev. 6 §7.1 (docs/references.md): the 30-70 % rise is
+    # 0.8473 Rp C, so C = 300 ns / (0.8473 x 2.2 kΩ) = 160.94 pF and Cb = C - 10 pF
+    # = 150.94 pF; the factor has four digits, hence rel=1e-4
+    assert got.rp == pytest.approx(2200.0, rel=1e-12)  # no part on the bus has a pull-up
+    assert got.cb == pytest.approx(150.94e-12, rel=1e-4)
+    # what the panel shows are those numbers, in the command's words
+    shown = html.unescape(b.bench_html.value).replace("\u00a0", " ")
+    f = format_si
+    for text in ("SDA of the bus built here, with Rp = 2.2 kΩ (±1 %; every pull-up on SDA "
+                 "in parallel)", f"<b>{f(engine.cb, 'F')}</b>", "151 pF",
+                 f"({f(engine.cb_low, 'F')} to {f(engine.cb_high, 'F')} over the pull-up's "
+                 "tolerance", f"the model's Cb <b>{f(engine.cb_model, 'F')}</b>",
+                 f"without the probe <b>{f(engine.rise_alone, 's')}</b>",
+                 engine.verdict_text()[1:]):
+        assert text in shown, (text, shown)
+    assert all(f"<li>{r}</li>" in shown for r in engine.revisit)
+    assert not re.search(r"\de[+-]\d|\bnan\b|\binf\b", shown, re.IGNORECASE)
+
+
 def test_bench_messages_write_numbers_with_si_prefixes(library):
     import re
 
@@ -262,7 +305,9 @@ def test_bench_messages_write_numbers_with_si_prefixes(library):
     b.rise_measured.text.value = "5 ns"  # faster than the probe alone allows
     shown = b.bench_html.value
     assert "faster than the probe" in shown and not re.search(r"\de[+-]\d", shown)
-    assert re.search(r"k·Rp·C_probe = [\d.]+ ns", shown), shown
+    # pinlib measured's refusal: the shortest rise the probe alone gives, in ns
+    assert re.search(r"probe alone gives through the pull-up [\d.]+ kΩ: [\d.]+ ns",
+                     shown), shown
 
 
 # ---------------------------------------------------------------- the bench panel on a
@@ -380,7 +425,7 @@ def test_bench_panel_i2c_reading_is_unchanged_by_a_saved_design(library):
     assert b.bench.line is not None and b.bench_html.value != shown
     b.set(bench_line="")
     assert b.bench == before and b.bench_html.value == shown
-    assert before.line is None and before.comparison is None
+    assert before.line is None and before.comparison.signal == "sda"
     b.set(bench_file="")
     assert b.bench_line.options == (("SDA of the bus built here", ""),)
     assert b.bench_html.value == shown and b.bench_line_note.value == ""
