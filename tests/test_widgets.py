@@ -1202,6 +1202,44 @@ def test_crosstalk_chart_shades_by_the_rule_the_checks_use():
     assert ticks and set(ticks) <= {10.0, 20.0, 50.0, 100.0, 200.0, 500.0, 1000.0, 2000.0}
 
 
+def test_crosstalk_figures_say_when_a_search_ended_at_its_own_bound():
+    """The minimum spacing and the maximum parallel length are searches: where no
+    spacing searched fails (and every length searched passes) the result is the
+    search's own bound, which the figures table says ("18 µm or less", "1 m or more")
+    as pinlib check's line does, instead of showing the bound as if it were the limit."""
+    from pinlib.model.result import Figure
+    from pinlib.present.report import coupling_line
+    from pinlib.widgets import CrosstalkExplorer
+
+    x = CrosstalkExplorer(DEMO)
+    x.set(spacing=0.1e-3, length=0.3, edge_time=0.5e-9)  # the workbook's closer, longer run
+    f = x.figures
+    # derived: the engine's results lie at the bounds it searched (its own figures)
+    assert f["minimum_spacing"].value == pytest.approx(f["spacing_searched_from"].value,
+                                                       rel=1e-9)
+    assert f["maximum_parallel_length"].value == pytest.approx(f["length_searched_to"].value,
+                                                               rel=1e-9)
+    cells = {k: html.unescape(v) for k, v in re.findall(
+        r'<tr title="([^"]+)"><td[^>]*>[^<]*</td><td[^>]*>([^<]*)</td>', x.figures_html.value)}
+    low, top = format_si(f["spacing_searched_from"].value, "m"), \
+        format_si(f["length_searched_to"].value, "m")
+    assert cells["minimum_spacing"] == f"{low} or less", cells
+    assert cells["maximum_parallel_length"] == f"{top} or more", cells
+    assert cells["spacing_searched_from"] == low and cells["length_searched_to"] == top
+    # the same words as pinlib check's line of the coupling
+    line = coupling_line(x.result)
+    assert f"minimum {low} or less" in line and f"maximum {top} or more" in line
+    # a result inside the searched range is the limit itself: no words
+    from pinlib.present.values import search_bound_words
+
+    # (invented test data: a minimum spacing of 50 µm found above an 18 µm start)
+    inside = {"minimum_spacing": Figure(50e-6, "m"), "spacing_searched_from": Figure(18e-6, "m")}
+    assert search_bound_words(inside, "minimum_spacing") == ""
+    assert search_bound_words({"minimum_spacing": Figure(None, "m", "none passes"),
+                               "spacing_searched_from": Figure(18e-6, "m")},
+                              "minimum_spacing") == ""
+
+
 def test_crosstalk_explorer_names_the_designs_aggressor_and_its_sliders_units():
     from pinlib.widgets import CrosstalkExplorer
 

@@ -10,7 +10,33 @@ from pinlib.core.labels import figure_label, shown_figures
 from pinlib.core.quantity import format_value
 from pinlib.model.result import Check, DesignResult, Figure, figure_text
 
-__all__ = ["format_value", "counts", "with_fix", "figure_cells"]
+__all__ = ["format_value", "counts", "with_fix", "figure_cells", "SEARCH_BOUNDS",
+           "search_bound_words"]
+
+#: Figures a search gives (a coupling's), with the figure of the search's own bound and
+#: the words a result at that bound takes: there the search found no end, so "18 µm"
+#: alone would read as the minimum when it is only where the search started.
+SEARCH_BOUNDS = {
+    "minimum_spacing": ("spacing_searched_from", "or less"),
+    "maximum_parallel_length": ("length_searched_to", "or more"),
+}
+
+
+def search_bound_words(figures: Mapping[str, Figure], name: str) -> str:
+    """``" or less"`` / ``" or more"`` when the figure ``name`` is a search's result
+    lying at the search's own bound (:data:`SEARCH_BOUNDS`), else ``""``."""
+    import math
+
+    if name not in SEARCH_BOUNDS:
+        return ""
+    bound, words = SEARCH_BOUNDS[name]
+    f, b = figures.get(name), figures.get(bound)
+    if f is None or b is None or not isinstance(f.value, (int, float)) \
+            or not isinstance(b.value, (int, float)) or isinstance(f.value, bool):
+        return ""
+    if not (math.isfinite(f.value) and math.isfinite(b.value)):
+        return ""
+    return f" {words}" if math.isclose(f.value, b.value, rel_tol=1e-9) else ""
 
 
 def _same(a: Figure, b: Figure) -> bool:

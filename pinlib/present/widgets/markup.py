@@ -17,6 +17,7 @@ from pinlib.core.errors import PinlibError
 from pinlib.model.result import CAUTION, BusResult, Group, figure_text, margin_text
 from pinlib.present import charts
 from pinlib.present.report import format_value
+from pinlib.present.values import search_bound_words
 
 STATUS_TEXT = {"pass": "PASS", "warn": "WARN", "fail": "FAIL"}
 _BORDER = "border:1px solid #c8c8c8;padding:1px 6px;vertical-align:top"
@@ -95,12 +96,14 @@ def _caption(text: str) -> str:
 def figures_table(figures: dict, caption: str = "Figures") -> str:
     """An HTML table of figures: each by its label (:func:`pinlib.core.labels.figure_label`)
     with its value and unit, a figure that repeats another left out
-    (:func:`pinlib.core.labels.shown_figures`)."""
+    (:func:`pinlib.core.labels.shown_figures`); a search's result at the search's own
+    bound says so ("18 µm or less": :func:`pinlib.present.values.search_bound_words`)."""
     values = {name: f.value for name, f in figures.items()}
     rows = "".join(
         f'<tr title="{e(name)}"><td style="{CELL}">{e(labels.figure_label(name))}</td>'
         f'<td style="{NUM}">{e(figure_text(figures[name]))}'
-        "</td></tr>" for name in labels.shown_figures(values))
+        f"{e(search_bound_words(figures, name))}</td></tr>"
+        for name in labels.shown_figures(values))
     return (f'<table style="{TABLE}">{_caption(caption)}'
             f'<tr><th style="{HEAD}">figure</th><th style="{HEAD}">value</th></tr>{rows}'
             "</table>")
