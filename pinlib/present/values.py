@@ -46,8 +46,10 @@ def _same(a: Figure, b: Figure) -> bool:
 def figure_cells(figures: Mapping[str, Figure]) -> list[tuple[str, str]]:
     """A group's figures as people read them: (label, value with its unit) in table
     order, each quantity once (:func:`pinlib.core.labels.shown_figures`: a line's copy of
-    the bus figure, the pull-up that is the resistor, shown once); ids stay in the JSON."""
-    return [(figure_label(n), _text(n, figures[n]))
+    the bus figure, the pull-up that is the resistor, shown once), a search's result at
+    the search's own bound with its words (:func:`search_bound_words`: "18 µm or
+    less"); ids stay in the JSON."""
+    return [(figure_label(n), _text(n, figures[n]) + search_bound_words(figures, n))
             for n in shown_figures(figures, same=_same)]
 
 
