@@ -440,16 +440,16 @@ def test_edge_vs_load_agrees_with_the_result(demo):
         assert e.model == ln.figures["model"].value
         model = lines[sig].models[e.driver]
         # derived from a linear ramp into no load: its 10-90 % part is 0.8 of the ramp
-        assert e.curves["rise 10-90"][0] == pytest.approx(0.8 * model.t_ramp_rise, rel=1e-9)
-        assert e.curves["fall 10-90"][0] == pytest.approx(0.8 * model.t_ramp_fall, rel=1e-9)
+        assert e.curves["rise 10–90 %"][0] == pytest.approx(0.8 * model.t_ramp_rise, rel=1e-9)
+        assert e.curves["fall 10–90 %"][0] == pytest.approx(0.8 * model.t_ramp_fall, rel=1e-9)
         if e.rs > 0:
             # a series resistor only slows the edge into a load
-            assert np.all(e.curves[f"rise 10-90, Rs {review._f(e.rs, 'Ω')}"][1:]
-                          > e.curves["rise 10-90"][1:])
+            assert np.all(e.curves[f"rise 10–90 %, Rs {review._f(e.rs, 'Ω')}"][1:]
+                          > e.curves["rise 10–90 %"][1:])
         if e.driver == "U1" and sig == "sclk":
             got = sorted(zip(e.points[0], e.points[1], e.points[2], strict=True))
-            want = sorted([(c, r, "rise 10-90") for c, r, _ in MCU_SCLK_EDGES]
-                          + [(c, f, "fall 10-90") for c, _, f in MCU_SCLK_EDGES])
+            want = sorted([(c, r, "rise 10–90 %") for c, r, _ in MCU_SCLK_EDGES]
+                          + [(c, f, "fall 10–90 %") for c, _, f in MCU_SCLK_EDGES])
             assert [(pytest.approx(a, rel=1e-12), pytest.approx(b, rel=1e-12), n)
                     for a, b, n in want] == got
             seen += 1

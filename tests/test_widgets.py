@@ -1339,6 +1339,18 @@ def test_line_explorer_charts_end_at_the_record_and_keep_the_note_off_the_curves
         assert room >= 3.0, (length, text, room)
 
 
+def test_line_explorer_edge_legend_names_its_levels_in_percent(library):
+    """Workbook 02's edge chart: each curve's levels are written as the figures table
+    and the bench panel write them ("10–90 %"), not as a bare "10-90"."""
+    le = LineExplorer(library, driver=("mcu-3v3", "sclk"),
+                      receivers=[("display-controller-spi", "sclk")], length=0.28,
+                      series="auto")
+    legend = html.unescape(le.edges.svg)
+    for name in ("rise 10–90 %", "fall 10–90 %"):
+        assert name in legend, name
+    assert not re.search(r"(rise|fall) \d+-\d+(?! %)", legend)
+
+
 def test_bus_builder_supply_filter_takes_the_rail_over_its_tolerance(library):
     # mcu-3v3's class states 3.0–3.6 V (invented built-in class); a 3.3 V rail at ±5 %
     # (3.135–3.465 V) stays inside it, at ±10 % (2.97–3.63 V) it does not, and the
