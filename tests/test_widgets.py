@@ -958,6 +958,10 @@ def test_swap_change_list_shows_what_pinlib_swap_lists():
     assert x.apply_swap("U4", "io-expander-i2c") == []
     assert "Level held low, with noise" in x.changes_html.value
     assert not [t for t in _listed(x) if t not in x.changes_html.value]
+    # the threshold in pinlib swap's words: "moved more than 5 %" (a space before %)
+    pct = f"{x.changes.threshold * 100:g} %"
+    assert f"figures moved more than {pct}" in x.changes_html.value
+    assert f"Figures that moved more than {pct}:" in x.changes.format_text()
 
 
 def test_swap_device_list_names_the_segments_of_a_bridging_part(explorer):

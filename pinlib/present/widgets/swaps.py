@@ -365,9 +365,11 @@ class SwapExplorer(_Panel):
         cl = self.changes
         if cl is None:
             return note("apply a substitution to see what changes")
+        # the threshold as pinlib swap writes it ("5 %")
+        pct = f"{cl.threshold * 100:g} %"
         if cl.empty:
-            return note("no check changed status, no figure moved beyond "
-                        f"{cl.threshold:.0%}, no part value differs")
+            return note(f"no check changed status, no figure moved more than {pct}, "
+                        "no part value differs")
         out = []
         for bus in self._bus_order():
             status = [c for c in cl.status_changes if self._group_of(c.path) == bus]
@@ -378,7 +380,7 @@ class SwapExplorer(_Panel):
             kind = "Bus" if any(b.id == bus for b in self.design.buses) else "Place"
             head = (f"{kind} <b>{e(bus)}</b>: {len(status)} check"
                     f"{'' if len(status) == 1 else 's'} changed status, {len(rows)} figure"
-                    f"{'' if len(rows) == 1 else 's'} moved more than {cl.threshold:.0%}")
+                    f"{'' if len(rows) == 1 else 's'} moved more than {pct}")
             body = ""
             if status:
                 body += "<ul>" + "".join(self._status_item(c) for c in status) + "</ul>"
