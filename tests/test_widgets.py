@@ -964,6 +964,39 @@ def test_swap_change_list_shows_what_pinlib_swap_lists():
     assert f"Figures that moved more than {pct}:" in x.changes.format_text()
 
 
+def test_checks_tables_say_which_side_of_its_limit_a_value_keeps():
+    """The pull-up window is held against its nearer end: after workbook 05's
+    substitution main-3v3's SDA pull-up (at -1 %) stands against Rp(min) and SCL's
+    (at +1 %) against Rp(max), which a bare "limit" column left for the reader to guess
+    ("2.38 kΩ, limit 1.95 kΩ, PASS"). Each limit now carries "≤" or "≥"."""
+    x = SwapExplorer(DEMO)
+    assert x.apply_swap("U4", "io-expander-i2c") == []
+    rows = {}
+    for body in re.findall(r'<tr title="[^"]*">(.*?)</tr>', x.checks_html.value):
+        cells = [html.unescape(re.sub(r"<[^>]+>", "", c)).replace("\u00a0", " ")
+                 for c in re.findall(r"<td[^>]*>(.*?)</td>", body)]
+        rows[(cells[1], cells[2])] = cells
+    sda = rows[("Pull-up window Rp(min)…Rp(max)", "main-3v3 SDA")]
+    scl = rows[("Pull-up window Rp(min)…Rp(max)", "main-3v3 SCL")]
+    assert sda[4].startswith("≥ ") and scl[4].startswith("≤ "), (sda, scl)
+    # published: UM10204 rev. 6, table 10: Cb is at most 400 pF
+    assert rows[("Bus capacitance", "main-3v3 SDA")][4] == "≤ 400 pF"
+    # the checks' sources: VOL against the receiver's VIL max, VOH against its VIH min
+    assert rows[("VOL", "main-3v3 SDA U1")][4].startswith("≤ ")
+    assert rows[("VOH", "main-3v3 SDA U1")][4].startswith("≥ ")
+    # the side agrees with every check's own verdict: a limit check fails exactly when
+    # its value is on the other side (derived: the sign convention of Check.margin)
+    from pinlib.present.values import limit_side
+
+    result = check_file(DEMO)
+    for b in list(result.buses) + list(result.couplings):
+        for _, _, c in b.all_checks():
+            side = limit_side(c)
+            if side:
+                outside = c.value > c.limit if side == "≤" else c.value < c.limit
+                assert outside == (c.margin < 0), (c.id, c.value, c.limit, c.margin)
+
+
 def test_swap_device_list_names_the_segments_of_a_bridging_part(explorer):
     labels = dict((v, k) for k, v in explorer.ref.options)
     assert "(sensors/main-3v3, sensors/sensor-1v8)" in labels["Q1"]

@@ -11,7 +11,7 @@ from pinlib.core.quantity import format_value
 from pinlib.model.result import Check, DesignResult, Figure, figure_text
 
 __all__ = ["format_value", "counts", "with_fix", "figure_cells", "SEARCH_BOUNDS",
-           "search_bound_words"]
+           "search_bound_words", "limit_side"]
 
 #: Figures a search gives (a coupling's), with the figure of the search's own bound and
 #: the words a result at that bound takes: there the search found no end, so "18 µm"
@@ -63,6 +63,25 @@ def _text(name: str, f: Figure) -> str:
 
         return figure_value_text(name, f.value, f.unit)
     return figure_text(f)
+
+
+def limit_side(c: Check) -> str:
+    """Which side of its limit a check's value must stay: ``"≤"`` (the limit is a
+    maximum), ``"≥"`` (a minimum), or ``""`` where the check does not tell (no numbers,
+    a value at its limit, a margin of 0).
+
+    Read from the check's own margin, which is positive on the passing side: a value
+    under its limit with a positive margin (or over it with a negative one) has a
+    maximum.  A window check (the pull-up window, the supply range) is held against
+    its nearer end, which this names."""
+    import math
+
+    v, lim, m = c.value, c.limit, c.margin
+    if not all(isinstance(x, (int, float)) and not isinstance(x, bool) for x in (v, lim, m)):
+        return ""
+    if not all(math.isfinite(float(x)) for x in (v, lim, m)) or v == lim or m == 0:
+        return ""
+    return "≤" if (v < lim) == (m > 0) else "≥"
 
 
 def with_fix(text: str, c: Check) -> str:

@@ -17,7 +17,7 @@ from pinlib.core.errors import PinlibError
 from pinlib.model.result import CAUTION, BusResult, Group, figure_text, margin_text
 from pinlib.present import charts
 from pinlib.present.report import format_value
-from pinlib.present.values import search_bound_words
+from pinlib.present.values import limit_side, search_bound_words
 
 STATUS_TEXT = {"pass": "PASS", "warn": "WARN", "fail": "FAIL"}
 _BORDER = "border:1px solid #c8c8c8;padding:1px 6px;vertical-align:top"
@@ -111,8 +111,9 @@ def figures_table(figures: dict, caption: str = "Figures") -> str:
 
 def checks_table(bus_result: BusResult, caption: str = "Checks") -> str:
     """An HTML table of every check of a bus: status (as a word and a colour), check,
-    where, value, limit, margin and the source of the limit; the check's message is the
-    row's tooltip."""
+    where, value, limit (with the side the value keeps, "≤ 400 pF":
+    :func:`pinlib.present.values.limit_side`), margin and the source of the limit; the
+    check's message is the row's tooltip."""
     head = "".join(f'<th style="{HEAD}">{h}</th>' for h in (
         "status", "check", "where", "value", "limit", "margin", "source"))
     rows = []
@@ -120,6 +121,10 @@ def checks_table(bus_result: BusResult, caption: str = "Checks") -> str:
         where = " ".join(str(x) for x in (seg or sig or bus_result.id, c.subject) if x)
         value = "" if isinstance(c.value, bool) else format_value(c.value, c.unit)
         limit = "" if isinstance(c.limit, bool) else format_value(c.limit, c.unit)
+        if limit_side(c):
+            # the side of the limit the value keeps: a window check's nearer end is a
+            # minimum on one row and a maximum on the next
+            limit = f"{limit_side(c)}\u00a0{limit}"
         rows.append(
             f'<tr title="{e(c.id)}: {e(c.message)}"><td style="{CELL}">{badge(c.status)}</td>'
             f'<td style="{CELL}">{e(labels.check_label(c.id))}</td>'
