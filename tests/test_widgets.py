@@ -295,6 +295,21 @@ def test_bench_panel_on_the_built_bus_gives_pinlib_measureds_answer(library, tmp
     assert not re.search(r"\de[+-]\d|\bnan\b|\binf\b", shown, re.IGNORECASE)
 
 
+def test_bench_panel_writes_a_range_down_to_zero_in_pf(library):
+    """A rise barely longer than the probe alone gives puts the low end of the Cb range
+    at 0 (it is clamped there); the panel writes it "0 pF", as it writes a contribution
+    of 0, not "0 F"."""
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.set(pullup=2200.0, rise_measured=20e-9, c_probe=10e-12)
+    got = b.bench.comparison
+    # derived: 20 ns x 0.9 (the reading's -10 %) / (ln(7/3) x 2.2 kΩ x 1.01) = 9.6 pF,
+    # under the 10 pF probe: the low end clamps to 0
+    assert got.cb_low == 0.0
+    shown = html.unescape(b.bench_html.value).replace("\u00a0", " ")
+    assert f"(0 pF to {format_si(got.cb_high, 'F')} over" in shown, shown
+    assert not re.search(r"\b0 F\b", shown), shown
+
+
 def test_bench_messages_write_numbers_with_si_prefixes(library):
     import re
 

@@ -73,7 +73,11 @@ def comparison_html(got: BenchComparison, place: str | None = None) -> str:
     names the line (``got.place()``, as the command names it, by default)."""
     f = format_si
     lo, hi = got.levels
-    parts = ", ".join(f"{k} {f(v, 'F') if v else '0 pF'}" for k, v in got.contributions.items())
+
+    def cap(v: float) -> str:  # a capacitance of 0 in pF, as the contributions are
+        return f(v, "F") if v else "0 pF"
+
+    parts = ", ".join(f"{k} {cap(v)}" for k, v in got.contributions.items())
     place = got.place() if place is None else place
     # on an I2C or SMBus line the engine's Rp is every pull-up on the line in parallel
     which = ("" if got.segment is None else
@@ -81,9 +85,9 @@ def comparison_html(got: BenchComparison, place: str | None = None) -> str:
     text = (
         f"{e(place[0].upper() + place[1:])}, with Rp = {e(f(got.rp, 'Ω'))} "
         f"(±{e(_percent(got.rp_tolerance))}{e(which)}): bus capacitance without the probe "
-        f"<b>{e(f(got.cb, 'F'))}</b> ({e(f(got.cb_low, 'F'))} to {e(f(got.cb_high, 'F'))} "
+        f"<b>{e(cap(got.cb))}</b> ({e(cap(got.cb_low))} to {e(cap(got.cb_high))} "
         f"over the pull-up's tolerance and a ±{e(_percent(READING_TOLERANCE))} reading, "
-        f"common practice); the model's Cb <b>{e(f(got.cb_model, 'F'))}</b> ({e(parts)})")
+        f"common practice); the model's Cb <b>{e(cap(got.cb_model))}</b> ({e(parts)})")
     if got.rise_alone is not None:
         text += (f"; rise time without the probe <b>{e(f(got.rise_alone, 's'))}</b> "
                  f"({lo * 100:.0f}–{hi * 100:.0f} %, as measured)")
