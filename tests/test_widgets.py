@@ -1254,6 +1254,23 @@ def test_crosstalk_chart_shades_by_the_rule_the_checks_use():
     assert ticks and set(ticks) <= {10.0, 20.0, 50.0, 100.0, 200.0, 500.0, 1000.0, 2000.0}
 
 
+def test_crosstalk_checks_keep_the_couplings_name_when_the_edge_moves():
+    """Workbook 06 moves the aggressor's edge (500 ps): the engine then names the
+    aggressor a described edge, "edge-1", which the checks table's where column showed
+    ("sensors.scl<-edge-1 SCL near end"); it keeps the coupling's name as the design and
+    pinlib check write it, and the status line says the edge was set."""
+    from pinlib.widgets import CrosstalkExplorer
+
+    x = CrosstalkExplorer(DEMO)
+    (design_coupling,) = check_file(DEMO).couplings
+    x.set(edge_time=0.5e-9)
+    assert x.result.id != design_coupling.id  # the engine's own name for the moved edge
+    shown = html.unescape(x.checks_html.value)
+    assert x.result.id not in shown and "edge-1" not in shown
+    assert f"{design_coupling.id} SCL near end" in shown, shown
+    assert "its edge set to 500 ps" in x.status_html.value
+
+
 def test_crosstalk_figures_say_when_a_search_ended_at_its_own_bound():
     """The minimum spacing and the maximum parallel length are searches: where no
     spacing searched fails (and every length searched passes) the result is the

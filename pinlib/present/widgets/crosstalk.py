@@ -102,6 +102,11 @@ class CrosstalkExplorer(_Panel):
         self.buses = {b.id: evaluate_bus(b, self.design) for b in self.design.buses
                       if b.id in needed}
         first = evaluate_coupling(self.coupling, self.buses, self.design)
+        # the coupling as the design and pinlib check name it ("sensors.scl<-display.sclk");
+        # a moved edge slider makes the aggressor a described edge named "edge-1", which
+        # says nothing to the reader: the checks keep this name, the status line says
+        # the edge was moved
+        self.name = first.id
         self.aggressor = first.workings.aggressor
         self.result = None
         self.figures: dict = {}
@@ -186,7 +191,7 @@ class CrosstalkExplorer(_Panel):
         self._draw_waves()
         self.status_html.value = status_line(got, self.title())
         self.figures_html.value = figures_table(self.figures)
-        self.checks_html.value = checks_table(got)
+        self.checks_html.value = checks_table(got, name=self.name)
         self.notes_html.value = notes_html([got])
 
     def _draw_waves(self) -> None:

@@ -109,16 +109,18 @@ def figures_table(figures: dict, caption: str = "Figures") -> str:
             "</table>")
 
 
-def checks_table(bus_result: BusResult, caption: str = "Checks") -> str:
+def checks_table(bus_result: BusResult, caption: str = "Checks", name: str | None = None) -> str:
     """An HTML table of every check of a bus: status (as a word and a colour), check,
     where, value, limit (with the side the value keeps, "≤ 400 pF":
     :func:`pinlib.present.values.limit_side`), margin and the source of the limit; the
-    check's message is the row's tooltip."""
+    check's message is the row's tooltip.  ``name``: what the where column calls a check
+    of the whole group (by default the group's id)."""
     head = "".join(f'<th style="{HEAD}">{h}</th>' for h in (
         "status", "check", "where", "value", "limit", "margin", "source"))
     rows = []
     for seg, sig, c in bus_result.all_checks():
-        where = " ".join(str(x) for x in (seg or sig or bus_result.id, c.subject) if x)
+        where = " ".join(str(x) for x in (seg or sig or name or bus_result.id, c.subject)
+                         if x)
         value = "" if isinstance(c.value, bool) else format_value(c.value, c.unit)
         limit = "" if isinstance(c.limit, bool) else format_value(c.limit, c.unit)
         if limit_side(c):
