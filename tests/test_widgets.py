@@ -1271,6 +1271,18 @@ def test_crosstalk_checks_keep_the_couplings_name_when_the_edge_moves():
     assert "its edge set to 500 ps" in x.status_html.value
 
 
+def test_crosstalk_chart_band_says_which_side_of_each_threshold():
+    """The shaded band of workbook 06's noise chart is the noise that keeps the victim
+    below VIL while held low and above VIH while held high; its legend read "noise
+    within VIL, VDD − VIH", which named no side of either."""
+    from pinlib.widgets import CrosstalkExplorer
+
+    x = CrosstalkExplorer(DEMO)
+    legend = html.unescape(x.noise_chart.svg)
+    assert "below VIL (held low), above VIH (held high)" in legend
+    assert "within VIL, VDD" not in legend
+
+
 def test_crosstalk_figures_say_when_a_search_ended_at_its_own_bound():
     """The minimum spacing and the maximum parallel length are searches: where no
     spacing searched fails (and every length searched passes) the result is the
