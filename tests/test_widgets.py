@@ -1012,6 +1012,22 @@ def test_checks_tables_say_which_side_of_its_limit_a_value_keeps():
                 assert outside == (c.margin < 0), (c.id, c.value, c.limit, c.margin)
 
 
+def test_swap_chart_titles_name_the_line_without_repeating_the_bus():
+    """Workbook 05's chart of a one-segment bus was titled "pull-up window, power power
+    SDA" (the segment takes the bus's id); a line is named as the bench panel names it:
+    the bus, its segment only where it has several, the line."""
+    x = SwapExplorer(DEMO)
+    x.ref.value = "U30"  # on power, an SMBus bus of one segment
+    assert x.before.spec["title"]["text"] == ["Before: pull-up window, power, SDA"]
+    x.ref.value = "U4"   # on sensors, split in two by the translator Q1
+    assert x.before.spec["title"]["text"] == [
+        "Before: pull-up window, sensors, segment main-3v3, SDA"]
+    # a GPIO bus's line: "reset reset" was the bus and its line of the same name
+    g = SwapExplorer(GPIO_RESET)
+    g.ref.value = "U2"
+    assert g.before.spec["title"]["text"] == ["Before: edge time against load, reset, line reset"]
+
+
 def test_swap_device_list_names_the_segments_of_a_bridging_part(explorer):
     labels = dict((v, k) for k, v in explorer.ref.options)
     assert "(sensors/main-3v3, sensors/sensor-1v8)" in labels["Q1"]
