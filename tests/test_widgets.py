@@ -1287,6 +1287,21 @@ def test_crosstalk_checks_keep_the_couplings_name_when_the_edge_moves():
     assert "its edge set to 500 ps" in x.status_html.value
 
 
+def test_crosstalk_notes_name_the_designs_aggressor_when_the_edge_moves():
+    """The engine's note on the aggressor named the described edge "edge-1" once the
+    edge slider moved; the notes name the design's aggressor, its edge set here."""
+    from pinlib.widgets import CrosstalkExplorer
+
+    x = CrosstalkExplorer(DEMO)
+    x.set(edge_time=0.5e-9)
+    notes = html.unescape(x.notes_html.value)
+    assert x.result.aggressor not in notes and "edge-1" not in notes, notes
+    assert "aggressor display.sclk (its edge set here): 3.3 V swing, edge 500 ps" in notes
+    # at the design's own edge the engine's note stands as it is
+    x.set(edge_time=x.aggressor.edge_time)
+    assert x.result.notes[0] in html.unescape(x.notes_html.value)
+
+
 def test_crosstalk_chart_band_says_which_side_of_each_threshold():
     """The shaded band of workbook 06's noise chart is the noise that keeps the victim
     below VIL while held low and above VIH while held high; its legend read "noise

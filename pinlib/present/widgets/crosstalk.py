@@ -192,7 +192,17 @@ class CrosstalkExplorer(_Panel):
         self.status_html.value = status_line(got, self.title())
         self.figures_html.value = figures_table(self.figures)
         self.checks_html.value = checks_table(got, name=self.name)
-        self.notes_html.value = notes_html([got])
+        self.notes_html.value = notes_html([got], self._notes(got))
+
+    def _notes(self, got) -> list[str]:
+        """The result's notes, where a moved edge slider made the aggressor a described
+        edge: the engine names it ("aggressor edge-1: 3.3 V swing, edge 500 ps ..."),
+        a name the reader never met; it is the design's aggressor, its edge set here."""
+        if got.aggressor == self.coupling.aggressor_name:
+            return list(got.notes)
+        said = f"aggressor {got.aggressor}:"
+        named = f"aggressor {self.coupling.aggressor_name} (its edge set here):"
+        return [named + n[len(said):] if n.startswith(said) else n for n in got.notes]
 
     def _draw_waves(self) -> None:
         w = self.waves

@@ -138,8 +138,10 @@ def checks_table(bus_result: BusResult, caption: str = "Checks", name: str | Non
             f"<tr>{head}</tr>{''.join(rows)}</table>")
 
 
-def notes_html(groups: list[Group]) -> str:
-    notes = [n for g in groups for n in g.notes]
+def notes_html(groups: list[Group], notes: list[str] | None = None) -> str:
+    """The groups' notes under a "Notes (n)" summary, each once; ``notes`` in place of
+    theirs where the widget words one of them its own way."""
+    notes = [n for g in groups for n in g.notes] if notes is None else list(notes)
     if not notes:
         return ""
     items = "".join(f"<li>{e(n)}</li>" for n in dict.fromkeys(notes))
