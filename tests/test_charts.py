@@ -872,7 +872,7 @@ def test_text_widths_are_the_fonts_own(bold, name):
 def _long_labels(width: int) -> dict:
     """Every chart with the longest labels the widgets and the report give it."""
     loads = np.linspace(0.0, 62.0, 31) * PICO
-    names = ["rise 10-90", "fall 10-90", "rise 10-90, Rs 27 Ω", "fall 10-90, Rs 27 Ω"]
+    names = ["rise 10–90 %", "fall 10–90 %", "rise 10–90 %, Rs 27 Ω", "fall 10–90 %, Rs 27 Ω"]
     times = np.vstack([2 * NANO + loads * k for k in (65.0, 50.0, 120.0, 105.0)])
     t = np.linspace(0.0, 20.0, 201) * NANO
     up = 3.3 * (1 - np.exp(-t / (2 * NANO)))
@@ -893,7 +893,7 @@ def _long_labels(width: int) -> dict:
         "edge_vs_load": lambda: charts.edge_vs_load(
             loads, times, series=names,
             points=(np.array([15, 50]) * PICO, np.array([2.5, 5.0]) * NANO,
-                    ["rise 10-90", "fall 10-90"]),
+                    ["rise 10–90 %", "fall 10–90 %"]),
             operating=(34.8 * PICO, 2.74 * NANO, "far end of this line (transmission-line "
                                                  "model)"),
             curves_title="Driver model into a lumped load at its pin",

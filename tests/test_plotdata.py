@@ -55,8 +55,8 @@ def test_edge_curves_have_fixed_distinct_colours(demo):
         assert all(charts.series_key(n) in charts.SERIES_COLOURS for n in names), names
         assert len(set(charts.series_colours(names))) == len(names)
         # the series resistor's curves are drawn at 10-90 %, the checks' levels
-        assert all("10-90" in n for n in names if ", Rs " in n)
-        other_levels = {n.split(",")[0].split()[1] for n in e.points[2]} - {"10-90"}
+        assert all("10–90 %" in n for n in names if ", Rs " in n)
+        other_levels = {n.split(",")[0].split()[1] for n in e.points[2]} - {"10–90"}
         assert len(names) == (4 if e.rs > 0 else 2) + 2 * len(other_levels)
         assert all(np.all(np.isfinite(c)) for c in e.curves.values())
 
@@ -121,11 +121,12 @@ lines.reset.series_resistor = "22 Ω"
 def test_edge_curves_at_every_datasheet_level_keep_their_colours(tmp_path):
     design = _gpio_with_edges(tmp_path)
     e = plotdata.edge_vs_load_data(design.bus("reset"), design, "reset")
-    # the datasheet's levels without the resistor, the resistor's curves at 10-90 %
-    assert list(e.curves) == ["rise 10-90", "fall 10-90", "rise 20-80", "fall 20-80",
-                              "rise 10-90, Rs 22 Ω", "fall 10-90, Rs 22 Ω"]
-    assert sorted(set(e.points[2])) == ["fall 10-90", "fall 20-80", "rise 10-90",
-                                        "rise 20-80"]
+    # the datasheet's levels without the resistor, the resistor's curves at 10-90 %;
+    # each named with its levels as the figures write them ("Rise time, 10–90 %")
+    assert list(e.curves) == ["rise 10–90 %", "fall 10–90 %", "rise 20–80 %", "fall 20–80 %",
+                              "rise 10–90 %, Rs 22 Ω", "fall 10–90 %, Rs 22 Ω"]
+    assert sorted(set(e.points[2])) == ["fall 10–90 %", "fall 20–80 %", "rise 10–90 %",
+                                        "rise 20–80 %"]
     colours = charts.series_colours(list(e.curves))
     assert len(set(colours)) == 6
     assert colours == [charts.SERIES_COLOURS[charts.series_key(n)] for n in e.curves]

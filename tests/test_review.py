@@ -216,21 +216,24 @@ def test_figures_under_readable_labels_each_quantity_once(page, built, demo):
     shown once (pinlib.core.labels.shown_figures)."""
     from pinlib.core.labels import figure_label, shown_figures
     from pinlib.model.result import figure_text
+    from pinlib.present.values import search_bound_words
 
     _, result = demo
     md, _ = built.markdown()
     groups = [g for b in result.results() for _, _, g, _ in review.text._groups(b)
               if g.figures]
-    shown = [(n, g.figures[n]) for g in groups for n in shown_figures(g.figures)]
+    shown = [(n, g.figures[n], g) for g in groups for n in shown_figures(g.figures)]
     every = sum(len(g.figures) for g in groups)
     assert 0 < len(shown) < every  # the demo repeats some quantities
     md_rows = re.findall(r"^\| (?!Figure \|)(?!---)([^|]+) \| ([^|]+) \|$", md, re.M)
     html_rows = re.findall(r'<div><dt>(.*?)</dt><dd(?: class="words")?>(.*?)</dd></div>', page)
     assert len(md_rows) == len(html_rows) == len(shown)
-    for (name, f), (md_label, md_value), (h_label, h_value) in zip(
+    for (name, f, g), (md_label, md_value), (h_label, h_value) in zip(
             shown, md_rows, html_rows, strict=True):
-        # a figure without a number shows its reason (figure_text), as in --detail
+        # a figure without a number shows its reason (figure_text), as in --detail; a
+        # search's result at the search's own bound says so ("18 µm or less")
         value = review.text._value(f.value, f.unit) if not f.reason else figure_text(f)
+        value += search_bound_words(g.figures, name)
         label = figure_label(name)
         assert (md_label, md_value) == (review._m(label), review._m(value))
         assert (h_label, h_value) == (html.escape(label), html.escape(value))
@@ -238,6 +241,12 @@ def test_figures_under_readable_labels_each_quantity_once(page, built, demo):
     for raw in ("rise_time_10_90", "max_clock_limited_by", "bus_capacitance_sda"):
         assert not any(raw in c or review._m(raw) in c for c in cells)
     assert "Highest clock set by" in md and "Rise time, 10–90 %" in md
+    # the demo's crosstalk searches end at their own bounds: no spacing searched fails
+    # (the coupling's own figures spacing_searched_from and length_searched_to)
+    (coupling,) = result.couplings
+    low = review._m(review.text._value(coupling.figures["spacing_searched_from"].value, "m"))
+    assert f"| Minimum spacing | {low} or less |" in md, md
+    assert f"<dt>Minimum spacing</dt><dd>{html.escape(low)} or less</dd>" in page
 
 
 def test_check_rows_name_checks_by_label(page, built, demo):
@@ -431,16 +440,16 @@ def test_edge_vs_load_agrees_with_the_result(demo):
         assert e.model == ln.figures["model"].value
         model = lines[sig].models[e.driver]
         # derived from a linear ramp into no load: its 10-90 % part is 0.8 of the ramp
-        assert e.curves["rise 10-90"][0] == pytest.approx(0.8 * model.t_ramp_rise, rel=1e-9)
-        assert e.curves["fall 10-90"][0] == pytest.approx(0.8 * model.t_ramp_fall, rel=1e-9)
+        assert e.curves["rise 10–90 %"][0] == pytest.approx(0.8 * model.t_ramp_rise, rel=1e-9)
+        assert e.curves["fall 10–90 %"][0] == pytest.approx(0.8 * model.t_ramp_fall, rel=1e-9)
         if e.rs > 0:
             # a series resistor only slows the edge into a load
-            assert np.all(e.curves[f"rise 10-90, Rs {review._f(e.rs, 'Ω')}"][1:]
-                          > e.curves["rise 10-90"][1:])
+            assert np.all(e.curves[f"rise 10–90 %, Rs {review._f(e.rs, 'Ω')}"][1:]
+                          > e.curves["rise 10–90 %"][1:])
         if e.driver == "U1" and sig == "sclk":
             got = sorted(zip(e.points[0], e.points[1], e.points[2], strict=True))
-            want = sorted([(c, r, "rise 10-90") for c, r, _ in MCU_SCLK_EDGES]
-                          + [(c, f, "fall 10-90") for c, _, f in MCU_SCLK_EDGES])
+            want = sorted([(c, r, "rise 10–90 %") for c, r, _ in MCU_SCLK_EDGES]
+                          + [(c, f, "fall 10–90 %") for c, _, f in MCU_SCLK_EDGES])
             assert [(pytest.approx(a, rel=1e-12), pytest.approx(b, rel=1e-12), n)
                     for a, b, n in want] == got
             seen += 1

@@ -252,6 +252,64 @@ def test_bench_panel_takes_the_probe_out_of_a_measured_rise(builder):
     builder.set(rise_measured=0.0)
 
 
+def test_bench_panel_on_the_built_bus_gives_pinlib_measureds_answer(library, tmp_path,
+                                                                     capsys, monkeypatch):
+    """SDA of the bus built in the workbench takes the path a saved design's line
+    takes: compare_rise, the function ``pinlib measured`` calls, and the panel shows its
+    numbers."""
+    from pinlib.cli import main
+    from pinlib.engines.bench import compare_rise
+
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    b = BusBuilder(library, peripherals=["eeprom-i2c"], length=0.14)
+    b.set(pullup=2200.0, pullup_tolerance=0.01, rise_measured=300e-9, c_probe=10e-12,
+          levels=(0.3, 0.7))
+    got = b.bench
+    # derived: the same function as pinlib measured, on the design the controls describe
+    engine = compare_rise(b.design, "i2c", 300e-9, 10e-12, levels=(0.3, 0.7), signal="sda")
+    assert got.line is None and got.comparison == engine
+    assert (got.rp, got.cb, got.rise, got.cb_model) == (engine.rp, engine.cb,
+                                                        engine.rise_alone, engine.cb_model)
+    # and the command itself on the design saved from the panel, for the same reading
+    path = b.save(tmp_path / "built.toml")
+    code = main(["measured", str(path), "--bus", "i2c", "--rise", "300ns", "--probe", "10pF",
+                 "--levels", "30,70", "--json"])
+    cli = json.loads(capsys.readouterr().out)
+    assert cli == engine.to_json() and code == (0 if engine.verdict == "agrees" else 1)
+    # derived from UM10204 rev. 6 §7.1 (docs/references.md): the 30-70 % rise is
+    # 0.8473 Rp C, so C = 300 ns / (0.8473 x 2.2 kΩ) = 160.94 pF and Cb = C - 10 pF
+    # = 150.94 pF; the factor has four digits, hence rel=1e-4
+    assert got.rp == pytest.approx(2200.0, rel=1e-12)  # no part on the bus has a pull-up
+    assert got.cb == pytest.approx(150.94e-12, rel=1e-4)
+    # what the panel shows are those numbers, in the command's words
+    shown = html.unescape(b.bench_html.value).replace("\u00a0", " ")
+    f = format_si
+    for text in ("SDA of the bus built here, with Rp = 2.2 kΩ (±1 %; every pull-up on SDA "
+                 "in parallel)", f"<b>{f(engine.cb, 'F')}</b>", "151 pF",
+                 f"({f(engine.cb_low, 'F')} to {f(engine.cb_high, 'F')} over the pull-up's "
+                 "tolerance", f"the model's Cb <b>{f(engine.cb_model, 'F')}</b>",
+                 f"without the probe <b>{f(engine.rise_alone, 's')}</b>",
+                 engine.verdict_text()[1:]):
+        assert text in shown, (text, shown)
+    assert all(f"<li>{r}</li>" in shown for r in engine.revisit)
+    assert not re.search(r"\de[+-]\d|\bnan\b|\binf\b", shown, re.IGNORECASE)
+
+
+def test_bench_panel_writes_a_range_down_to_zero_in_pf(library):
+    """A rise barely longer than the probe alone gives puts the low end of the Cb range
+    at 0 (it is clamped there); the panel writes it "0 pF", as it writes a contribution
+    of 0, not "0 F"."""
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.set(pullup=2200.0, rise_measured=20e-9, c_probe=10e-12)
+    got = b.bench.comparison
+    # derived: 20 ns x 0.9 (the reading's -10 %) / (ln(7/3) x 2.2 kΩ x 1.01) = 9.6 pF,
+    # under the 10 pF probe: the low end clamps to 0
+    assert got.cb_low == 0.0
+    shown = html.unescape(b.bench_html.value).replace("\u00a0", " ")
+    assert f"(0 pF to {format_si(got.cb_high, 'F')} over" in shown, shown
+    assert not re.search(r"\b0 F\b", shown), shown
+
+
 def test_bench_messages_write_numbers_with_si_prefixes(library):
     import re
 
@@ -262,7 +320,9 @@ def test_bench_messages_write_numbers_with_si_prefixes(library):
     b.rise_measured.text.value = "5 ns"  # faster than the probe alone allows
     shown = b.bench_html.value
     assert "faster than the probe" in shown and not re.search(r"\de[+-]\d", shown)
-    assert re.search(r"k·Rp·C_probe = [\d.]+ ns", shown), shown
+    # pinlib measured's refusal: the shortest rise the probe alone gives, in ns
+    assert re.search(r"probe alone gives through the pull-up [\d.]+ kΩ: [\d.]+ ns",
+                     shown), shown
 
 
 # ---------------------------------------------------------------- the bench panel on a
@@ -380,7 +440,7 @@ def test_bench_panel_i2c_reading_is_unchanged_by_a_saved_design(library):
     assert b.bench.line is not None and b.bench_html.value != shown
     b.set(bench_line="")
     assert b.bench == before and b.bench_html.value == shown
-    assert before.line is None and before.comparison is None
+    assert before.line is None and before.comparison.signal == "sda"
     b.set(bench_file="")
     assert b.bench_line.options == (("SDA of the bus built here", ""),)
     assert b.bench_html.value == shown and b.bench_line_note.value == ""
@@ -913,6 +973,59 @@ def test_swap_change_list_shows_what_pinlib_swap_lists():
     assert x.apply_swap("U4", "io-expander-i2c") == []
     assert "Level held low, with noise" in x.changes_html.value
     assert not [t for t in _listed(x) if t not in x.changes_html.value]
+    # the threshold in pinlib swap's words: "moved more than 5 %" (a space before %)
+    pct = f"{x.changes.threshold * 100:g} %"
+    assert f"figures moved more than {pct}" in x.changes_html.value
+    assert f"Figures that moved more than {pct}:" in x.changes.format_text()
+
+
+def test_checks_tables_say_which_side_of_its_limit_a_value_keeps():
+    """The pull-up window is held against its nearer end: after workbook 05's
+    substitution main-3v3's SDA pull-up (at -1 %) stands against Rp(min) and SCL's
+    (at +1 %) against Rp(max), which a bare "limit" column left for the reader to guess
+    ("2.38 kΩ, limit 1.95 kΩ, PASS"). Each limit now carries "≤" or "≥"."""
+    x = SwapExplorer(DEMO)
+    assert x.apply_swap("U4", "io-expander-i2c") == []
+    rows = {}
+    for body in re.findall(r'<tr title="[^"]*">(.*?)</tr>', x.checks_html.value):
+        cells = [html.unescape(re.sub(r"<[^>]+>", "", c)).replace("\u00a0", " ")
+                 for c in re.findall(r"<td[^>]*>(.*?)</td>", body)]
+        rows[(cells[1], cells[2])] = cells
+    sda = rows[("Pull-up window Rp(min)…Rp(max)", "main-3v3 SDA")]
+    scl = rows[("Pull-up window Rp(min)…Rp(max)", "main-3v3 SCL")]
+    assert sda[4].startswith("≥ ") and scl[4].startswith("≤ "), (sda, scl)
+    # published: UM10204 rev. 6, table 10: Cb is at most 400 pF
+    assert rows[("Bus capacitance", "main-3v3 SDA")][4] == "≤ 400 pF"
+    # the checks' sources: VOL against the receiver's VIL max, VOH against its VIH min
+    assert rows[("VOL", "main-3v3 SDA U1")][4].startswith("≤ ")
+    assert rows[("VOH", "main-3v3 SDA U1")][4].startswith("≥ ")
+    # the side agrees with every check's own verdict: a limit check fails exactly when
+    # its value is on the other side (derived: the sign convention of Check.margin)
+    from pinlib.present.values import limit_side
+
+    result = check_file(DEMO)
+    for b in list(result.buses) + list(result.couplings):
+        for _, _, c in b.all_checks():
+            side = limit_side(c)
+            if side:
+                outside = c.value > c.limit if side == "≤" else c.value < c.limit
+                assert outside == (c.margin < 0), (c.id, c.value, c.limit, c.margin)
+
+
+def test_swap_chart_titles_name_the_line_without_repeating_the_bus():
+    """Workbook 05's chart of a one-segment bus was titled "pull-up window, power power
+    SDA" (the segment takes the bus's id); a line is named as the bench panel names it:
+    the bus, its segment only where it has several, the line."""
+    x = SwapExplorer(DEMO)
+    x.ref.value = "U30"  # on power, an SMBus bus of one segment
+    assert x.before.spec["title"]["text"] == ["Before: pull-up window, power, SDA"]
+    x.ref.value = "U4"   # on sensors, split in two by the translator Q1
+    assert x.before.spec["title"]["text"] == [
+        "Before: pull-up window, sensors, segment main-3v3, SDA"]
+    # a GPIO bus's line: "reset reset" was the bus and its line of the same name
+    g = SwapExplorer(GPIO_RESET)
+    g.ref.value = "U2"
+    assert g.before.spec["title"]["text"] == ["Before: edge time against load, reset, line reset"]
 
 
 def test_swap_device_list_names_the_segments_of_a_bridging_part(explorer):
@@ -1157,6 +1270,88 @@ def test_crosstalk_chart_shades_by_the_rule_the_checks_use():
     assert ticks and set(ticks) <= {10.0, 20.0, 50.0, 100.0, 200.0, 500.0, 1000.0, 2000.0}
 
 
+def test_crosstalk_checks_keep_the_couplings_name_when_the_edge_moves():
+    """Workbook 06 moves the aggressor's edge (500 ps): the engine then names the
+    aggressor a described edge, "edge-1", which the checks table's where column showed
+    ("sensors.scl<-edge-1 SCL near end"); it keeps the coupling's name as the design and
+    pinlib check write it, and the status line says the edge was set."""
+    from pinlib.widgets import CrosstalkExplorer
+
+    x = CrosstalkExplorer(DEMO)
+    (design_coupling,) = check_file(DEMO).couplings
+    x.set(edge_time=0.5e-9)
+    assert x.result.id != design_coupling.id  # the engine's own name for the moved edge
+    shown = html.unescape(x.checks_html.value)
+    assert x.result.id not in shown and "edge-1" not in shown
+    assert f"{design_coupling.id} SCL near end" in shown, shown
+    assert "its edge set to 500 ps" in x.status_html.value
+
+
+def test_crosstalk_notes_name_the_designs_aggressor_when_the_edge_moves():
+    """The engine's note on the aggressor named the described edge "edge-1" once the
+    edge slider moved; the notes name the design's aggressor, its edge set here."""
+    from pinlib.widgets import CrosstalkExplorer
+
+    x = CrosstalkExplorer(DEMO)
+    x.set(edge_time=0.5e-9)
+    notes = html.unescape(x.notes_html.value)
+    assert x.result.aggressor not in notes and "edge-1" not in notes, notes
+    assert "aggressor display.sclk (its edge set here): 3.3 V swing, edge 500 ps" in notes
+    # at the design's own edge the engine's note stands as it is
+    x.set(edge_time=x.aggressor.edge_time)
+    assert x.result.notes[0] in html.unescape(x.notes_html.value)
+
+
+def test_crosstalk_chart_band_says_which_side_of_each_threshold():
+    """The shaded band of workbook 06's noise chart is the noise that keeps the victim
+    below VIL while held low and above VIH while held high; its legend read "noise
+    within VIL, VDD − VIH", which named no side of either."""
+    from pinlib.widgets import CrosstalkExplorer
+
+    x = CrosstalkExplorer(DEMO)
+    legend = html.unescape(x.noise_chart.svg)
+    assert "below VIL (held low), above VIH (held high)" in legend
+    assert "within VIL, VDD" not in legend
+
+
+def test_crosstalk_figures_say_when_a_search_ended_at_its_own_bound():
+    """The minimum spacing and the maximum parallel length are searches: where no
+    spacing searched fails (and every length searched passes) the result is the
+    search's own bound, which the figures table says ("18 µm or less", "1 m or more")
+    as pinlib check's line does, instead of showing the bound as if it were the limit."""
+    from pinlib.model.result import Figure
+    from pinlib.present.report import coupling_line
+    from pinlib.widgets import CrosstalkExplorer
+
+    x = CrosstalkExplorer(DEMO)
+    x.set(spacing=0.1e-3, length=0.3, edge_time=0.5e-9)  # the workbook's closer, longer run
+    f = x.figures
+    # derived: the engine's results lie at the bounds it searched (its own figures)
+    assert f["minimum_spacing"].value == pytest.approx(f["spacing_searched_from"].value,
+                                                       rel=1e-9)
+    assert f["maximum_parallel_length"].value == pytest.approx(f["length_searched_to"].value,
+                                                               rel=1e-9)
+    cells = {k: html.unescape(v) for k, v in re.findall(
+        r'<tr title="([^"]+)"><td[^>]*>[^<]*</td><td[^>]*>([^<]*)</td>', x.figures_html.value)}
+    low, top = format_si(f["spacing_searched_from"].value, "m"), \
+        format_si(f["length_searched_to"].value, "m")
+    assert cells["minimum_spacing"] == f"{low} or less", cells
+    assert cells["maximum_parallel_length"] == f"{top} or more", cells
+    assert cells["spacing_searched_from"] == low and cells["length_searched_to"] == top
+    # the same words as pinlib check's line of the coupling
+    line = coupling_line(x.result)
+    assert f"minimum {low} or less" in line and f"maximum {top} or more" in line
+    # a result inside the searched range is the limit itself: no words
+    from pinlib.present.values import search_bound_words
+
+    # (invented test data: a minimum spacing of 50 µm found above an 18 µm start)
+    inside = {"minimum_spacing": Figure(50e-6, "m"), "spacing_searched_from": Figure(18e-6, "m")}
+    assert search_bound_words(inside, "minimum_spacing") == ""
+    assert search_bound_words({"minimum_spacing": Figure(None, "m", "none passes"),
+                               "spacing_searched_from": Figure(18e-6, "m")},
+                              "minimum_spacing") == ""
+
+
 def test_crosstalk_explorer_names_the_designs_aggressor_and_its_sliders_units():
     from pinlib.widgets import CrosstalkExplorer
 
@@ -1254,6 +1449,18 @@ def test_line_explorer_charts_end_at_the_record_and_keep_the_note_off_the_curves
         room, text = _note_clearance(le.edges.spec)
         # common practice, no source: 3 px between text and a line reads as apart
         assert room >= 3.0, (length, text, room)
+
+
+def test_line_explorer_edge_legend_names_its_levels_in_percent(library):
+    """Workbook 02's edge chart: each curve's levels are written as the figures table
+    and the bench panel write them ("10–90 %"), not as a bare "10-90"."""
+    le = LineExplorer(library, driver=("mcu-3v3", "sclk"),
+                      receivers=[("display-controller-spi", "sclk")], length=0.28,
+                      series="auto")
+    legend = html.unescape(le.edges.svg)
+    for name in ("rise 10–90 %", "fall 10–90 %"):
+        assert name in legend, name
+    assert not re.search(r"(rise|fall) \d+-\d+(?! %)", legend)
 
 
 def test_bus_builder_supply_filter_takes_the_rail_over_its_tolerance(library):

@@ -29,6 +29,7 @@ pytest.importorskip("vl_convert")
 import ipywidgets as W  # noqa: E402
 
 from pinlib.core.errors import InputError  # noqa: E402
+from pinlib.core.quantity import format_si  # noqa: E402
 from pinlib.library import load_library  # noqa: E402
 from pinlib.present.widgets import (  # noqa: E402
     BusBuilder,
@@ -269,13 +270,37 @@ def test_two_refused_fields_hold_the_panel_until_both_are_valid(library):
     assert le.figures["series_resistor"].value == 0.0  # the "none" set while held
 
 
+def test_a_bare_number_is_offered_only_units_its_field_takes(library):
+    """A bare number's refusal suggests writing it with a unit; where that value would
+    be refused too (a supply of "-3.3" read as -3.3 V), it names the field's range
+    instead of sending the user to a second refusal."""
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    lo, hi = b.supply.lo, b.supply.hi  # the field's own range
+    _type(b.supply, "-3.3")
+    shown = html.unescape(b.supply.error_html.value)
+    assert "a bare number has no unit" in shown, shown
+    assert '"-3.3 V"' not in shown
+    assert f"range is from {format_si(lo, 'V')} to {format_si(hi, 'V')}" in shown, shown
+    # in range with its unit: the unit is offered, as the parser words it
+    _type(b.supply, "3.3")
+    assert 'add the unit, e.g. "3.3 V"' in html.unescape(b.supply.error_html.value)
+    # a length: of the two likely units only those the field takes (5000 cm and 5000 mm
+    # are past 2 m; 14 cm and 14 mm are both inside)
+    _type(b.trace.length, "14")
+    assert '"14 cm" or "14 mm"' in html.unescape(b.trace.length.error_html.value)
+    _type(b.trace.length, "5000")
+    shown = html.unescape(b.trace.length.error_html.value)
+    assert '"5000 cm"' not in shown and "range is from" in shown, shown
+
+
 def test_bench_reading_writes_the_levels_as_the_dropdown_does(library):
     """The reading names its levels as the Measured dropdown offers them ("10–90 %"),
     not in another spelling ("10%–90%")."""
     b = BusBuilder(library, peripherals=["eeprom-i2c"])
     b.levels.value = (0.1, 0.9)
     b.set(pullup=2200.0, rise_measured=300e-9)
-    shown = html.unescape(b.bench_html.value)
+    # a number is held to its unit by a no-break space (benchreading._held)
+    shown = html.unescape(b.bench_html.value).replace("\u00a0", " ")
     label = next(k for k, v in b.levels.options if v == (0.1, 0.9))
     assert f"({label}, as measured)" in shown, shown
 

@@ -31,7 +31,7 @@ from pinlib.model.result import (
 )
 from pinlib.present.detail import detail_lines
 from pinlib.present.terminal import DEFAULT_WIDTH, status_word, wrap
-from pinlib.present.values import counts, format_value, with_fix
+from pinlib.present.values import counts, format_value, search_bound_words, with_fix
 
 __all__ = ["format_text", "format_value", "problem_line", "bus_line", "coupling_line", "counts",
            "CAUTION_LINE", "MODES", "paint", "fit"]
@@ -241,23 +241,20 @@ def coupling_line(c) -> str:
     peak = _fig_text(c, "peak_noise")
     if peak:
         parts.append(f"peak noise {peak}")
-    least = _bounded(c, "minimum_spacing", "spacing_searched_from", "or less")
+    least = _bounded(c, "minimum_spacing")
     parts.append(f"spacing {_fig_text(c, 'spacing')}, minimum {least}")
-    longest = _bounded(c, "maximum_parallel_length", "length_searched_to", "or more")
+    longest = _bounded(c, "maximum_parallel_length")
     parts.append(f"parallel {_fig_text(c, 'parallel_length')}, maximum {longest}")
     return f"{head}: {', '.join(parts)}"
 
 
-def _bounded(c, name: str, bound: str, beyond: str) -> str:
+def _bounded(c, name: str) -> str:
     """A search's result as text: "— (none passes)" where there is none, "18 µm or less"
-    where it is the search's own bound."""
-    f, b = c.figures.get(name), c.figures.get(bound)
+    where it is the search's own bound (:func:`pinlib.present.values.search_bound_words`)."""
+    f = c.figures.get(name)
     if f is None or f.value is None:
         return "— (none passes)"
-    text = format_value(f.value, f.unit)
-    if b is not None and b.value is not None and math.isclose(f.value, b.value, rel_tol=1e-9):
-        text += f" {beyond}"
-    return text
+    return format_value(f.value, f.unit) + search_bound_words(c.figures, name)
 
 
 def bus_line(bus: BusResult) -> str:

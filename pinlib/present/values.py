@@ -10,7 +10,33 @@ from pinlib.core.labels import figure_label, shown_figures
 from pinlib.core.quantity import format_value
 from pinlib.model.result import Check, DesignResult, Figure, figure_text
 
-__all__ = ["format_value", "counts", "with_fix", "figure_cells"]
+__all__ = ["format_value", "counts", "with_fix", "figure_cells", "SEARCH_BOUNDS",
+           "search_bound_words", "limit_side"]
+
+#: Figures a search gives (a coupling's), with the figure of the search's own bound and
+#: the words a result at that bound takes: there the search found no end, so "18 µm"
+#: alone would read as the minimum when it is only where the search started.
+SEARCH_BOUNDS = {
+    "minimum_spacing": ("spacing_searched_from", "or less"),
+    "maximum_parallel_length": ("length_searched_to", "or more"),
+}
+
+
+def search_bound_words(figures: Mapping[str, Figure], name: str) -> str:
+    """``" or less"`` / ``" or more"`` when the figure ``name`` is a search's result
+    lying at the search's own bound (:data:`SEARCH_BOUNDS`), else ``""``."""
+    import math
+
+    if name not in SEARCH_BOUNDS:
+        return ""
+    bound, words = SEARCH_BOUNDS[name]
+    f, b = figures.get(name), figures.get(bound)
+    if f is None or b is None or not isinstance(f.value, (int, float)) \
+            or not isinstance(b.value, (int, float)) or isinstance(f.value, bool):
+        return ""
+    if not (math.isfinite(f.value) and math.isfinite(b.value)):
+        return ""
+    return f" {words}" if math.isclose(f.value, b.value, rel_tol=1e-9) else ""
 
 
 def _same(a: Figure, b: Figure) -> bool:
@@ -20,8 +46,10 @@ def _same(a: Figure, b: Figure) -> bool:
 def figure_cells(figures: Mapping[str, Figure]) -> list[tuple[str, str]]:
     """A group's figures as people read them: (label, value with its unit) in table
     order, each quantity once (:func:`pinlib.core.labels.shown_figures`: a line's copy of
-    the bus figure, the pull-up that is the resistor, shown once); ids stay in the JSON."""
-    return [(figure_label(n), _text(n, figures[n]))
+    the bus figure, the pull-up that is the resistor, shown once), a search's result at
+    the search's own bound with its words (:func:`search_bound_words`: "18 µm or
+    less"); ids stay in the JSON."""
+    return [(figure_label(n), _text(n, figures[n]) + search_bound_words(figures, n))
             for n in shown_figures(figures, same=_same)]
 
 
@@ -35,6 +63,25 @@ def _text(name: str, f: Figure) -> str:
 
         return figure_value_text(name, f.value, f.unit)
     return figure_text(f)
+
+
+def limit_side(c: Check) -> str:
+    """Which side of its limit a check's value must stay: ``"≤"`` (the limit is a
+    maximum), ``"≥"`` (a minimum), or ``""`` where the check does not tell (no numbers,
+    a value at its limit, a margin of 0).
+
+    Read from the check's own margin, which is positive on the passing side: a value
+    under its limit with a positive margin (or over it with a negative one) has a
+    maximum.  A window check (the pull-up window, the supply range) is held against
+    its nearer end, which this names."""
+    import math
+
+    v, lim, m = c.value, c.limit, c.margin
+    if not all(isinstance(x, (int, float)) and not isinstance(x, bool) for x in (v, lim, m)):
+        return ""
+    if not all(math.isfinite(float(x)) for x in (v, lim, m)) or v == lim or m == 0:
+        return ""
+    return "≤" if (v < lim) == (m > 0) else "≥"
 
 
 def with_fix(text: str, c: Check) -> str:

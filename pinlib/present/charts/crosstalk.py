@@ -133,7 +133,9 @@ def _area(xs, lo: float, hi: float, fx: float, fy: float, series: str, x, y, col
 def _labels(y0, x0, minimum_spacing, within_spacing, t_sp, searched_from) -> tuple:
     """The legend entries: the band, the curve, the design's point, the minimum spacing's
     rule (None without one) and the warning region (None where there is none)."""
-    region = "noise within VIL, VDD − VIH"
+    # the band is the excursion each threshold allows from the level the line is held
+    # at: it read "noise within VIL, VDD − VIH", which named no side of either
+    region = "noise that keeps the line below VIL (held low), above VIH (held high)"
     point = f"design: {format_si(y0, 'V')} at {format_si(x0, 'm')}"
     rule = warned = None
     if minimum_spacing is not None:

@@ -52,12 +52,12 @@ SERIES = (BLUE, WINE, SKY_BLUE, INDIGO, OLIVE, DARK_OLIVE, SAND)
 SERIES_COLOURS = {
     # edge time against load (pinlib.present.plotdata.edge_vs_load_data): rise blue tones,
     # fall wine/sky; the dark tone without the series resistor
-    "rise 10-90": INDIGO,
-    "fall 10-90": WINE,
-    "rise 10-90, Rs": BLUE,
-    "fall 10-90, Rs": SKY_BLUE,
-    "rise 20-80": OLIVE,
-    "fall 20-80": DARK_OLIVE,
+    "rise 10–90 %": INDIGO,
+    "fall 10–90 %": WINE,
+    "rise 10–90 %, Rs": BLUE,
+    "fall 10–90 %, Rs": SKY_BLUE,
+    "rise 20–80 %": OLIVE,
+    "fall 20–80 %": DARK_OLIVE,
     # far-end waveforms (pinlib.present.plotdata.waveform_data), the same pairs
     "rise, no series R": INDIGO,
     "fall, no series R": WINE,

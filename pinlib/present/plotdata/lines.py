@@ -37,7 +37,7 @@ class EdgeLoadData:
     curves : dict of str to numpy.ndarray
         Edge time of the driver model (:func:`pinlib.physics.driver.edge_vs_load`, a
         lumped load at the pin) at each load, by curve name (edge, measuring levels and
-        series resistor, e.g. ``"rise 10-90"``, ``"fall 10-90, Rs 33 Ω"``). [s]
+        series resistor, e.g. ``"rise 10–90 %"``, ``"fall 10–90 %, Rs 33 Ω"``). [s]
     points : tuple of (numpy.ndarray, numpy.ndarray, list of str)
         The pin's datasheet edge points: loads [F], times [s] and for each the name of
         the curve it belongs to. [F, s, 1]
@@ -146,7 +146,11 @@ class WaveformData:
 
 
 def _curve_name(edge: str, levels: str, rs: float) -> str:
-    name = f"{edge} {levels}"
+    """A curve's name as its legend shows it: the edge, its measuring levels written as
+    the figures write them ("10–90 %", from the library's "10-90") and the series
+    resistor (``"rise 10–90 %, Rs 27 Ω"``)."""
+    lo, _, hi = levels.partition("-")
+    name = f"{edge} {lo}–{hi} %"
     return name + (f", Rs {format_si(rs, 'Ω')}" if rs > 0 else "")
 
 

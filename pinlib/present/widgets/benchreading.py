@@ -1,5 +1,6 @@
-"""The bench panel's answer of workbench 01 (:class:`BenchReading`), and its text for a
-line of a saved design (:func:`comparison_html`: what ``pinlib measured`` says of it)."""
+"""The bench panel's answer of workbench 01 (:class:`BenchReading`), and its text
+(:func:`comparison_html`: what ``pinlib measured`` says of the line, on SDA of the bus
+built in the workbench as on a line of a saved design)."""
 
 from __future__ import annotations
 
@@ -24,20 +25,21 @@ class BenchReading:
     levels : tuple of float
         The measuring levels as fractions of VDD. [1]
     rp : float
-        The effective pull-up on the line (the engine's nominal value). [Ω]
+        The pull-up on the line (the engine's nominal value: on an I2C or SMBus line
+        every pull-up on it in parallel). [Ω]
     cb : float
         Bus capacitance without the probe. [F]
     rise : float
         The rise time between the same levels without the probe. [s]
     cb_model : float
         The engine's bus capacitance of the line, for comparison. [F]
+    comparison : BenchComparison
+        ``pinlib measured``'s answer (:func:`pinlib.engines.bench.compare_rise`) on the
+        line, which ``rp``, ``cb``, ``rise`` and ``cb_model`` are taken from: on SDA of
+        the bus built in the workbench as on a saved design's line.
     line : MeasurableLine or None
         The line of a saved design the reading was taken on; None on SDA of the bus
         built in the workbench.
-    comparison : BenchComparison or None
-        On a saved design's line, ``pinlib measured``'s answer
-        (:func:`pinlib.engines.bench.compare_rise`), which ``rp``, ``cb``, ``rise`` and
-        ``cb_model`` are taken from; None on the bus built in the workbench.
     """
 
     t_measured: float
@@ -47,8 +49,8 @@ class BenchReading:
     cb: float
     rise: float
     cb_model: float
+    comparison: BenchComparison
     line: MeasurableLine | None = None
-    comparison: BenchComparison | None = None
 
 
 #: The space between a number and its unit ("23 pF", "10 kΩ", "10 %"), which the panel's
@@ -64,20 +66,28 @@ def _percent(fraction: float) -> str:
     return f"{fraction * 100:g} %"
 
 
-def comparison_html(got: BenchComparison) -> str:
-    """``pinlib measured``'s answer on a saved design's line, as the bench panel shows
-    it: the reading's Cb and its range, the model's Cb and its contributions, the rise
-    without the probe, the verdict and what to revisit (the command's own sentences)."""
+def comparison_html(got: BenchComparison, place: str | None = None) -> str:
+    """``pinlib measured``'s answer on a line, as the bench panel shows it: the
+    reading's Cb and its range, the model's Cb and its contributions, the rise without
+    the probe, the verdict and what to revisit (the command's own sentences).  ``place``
+    names the line (``got.place()``, as the command names it, by default)."""
     f = format_si
     lo, hi = got.levels
-    parts = ", ".join(f"{k} {f(v, 'F') if v else '0 pF'}" for k, v in got.contributions.items())
-    place = got.place()
+
+    def cap(v: float) -> str:  # a capacitance of 0 in pF, as the contributions are
+        return f(v, "F") if v else "0 pF"
+
+    parts = ", ".join(f"{k} {cap(v)}" for k, v in got.contributions.items())
+    place = got.place() if place is None else place
+    # on an I2C or SMBus line the engine's Rp is every pull-up on the line in parallel
+    which = ("" if got.segment is None else
+             f"; every pull-up on {got.signal.upper()} in parallel")
     text = (
         f"{e(place[0].upper() + place[1:])}, with Rp = {e(f(got.rp, 'Ω'))} "
-        f"(±{e(_percent(got.rp_tolerance))}): bus capacitance without the probe "
-        f"<b>{e(f(got.cb, 'F'))}</b> ({e(f(got.cb_low, 'F'))} to {e(f(got.cb_high, 'F'))} "
+        f"(±{e(_percent(got.rp_tolerance))}{e(which)}): bus capacitance without the probe "
+        f"<b>{e(cap(got.cb))}</b> ({e(cap(got.cb_low))} to {e(cap(got.cb_high))} "
         f"over the pull-up's tolerance and a ±{e(_percent(READING_TOLERANCE))} reading, "
-        f"common practice); the model's Cb <b>{e(f(got.cb_model, 'F'))}</b> ({e(parts)})")
+        f"common practice); the model's Cb <b>{e(cap(got.cb_model))}</b> ({e(parts)})")
     if got.rise_alone is not None:
         text += (f"; rise time without the probe <b>{e(f(got.rise_alone, 's'))}</b> "
                  f"({lo * 100:.0f}–{hi * 100:.0f} %, as measured)")

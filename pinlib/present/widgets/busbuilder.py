@@ -591,8 +591,6 @@ class BusBuilder(_Panel):
             self.bench_file_error.value = error_html(err) + (note(kept) if kept else "")
 
     def _bench(self) -> None:
-        from pinlib.engines.opendrain import capacitance_from_rise
-
         refused = [f for f in (self.rise_measured, self.c_probe) if f.error]
         if refused:
             # the reading shown stays that of the last valid inputs, and says so
@@ -604,53 +602,37 @@ class BusBuilder(_Panel):
             return
         self.bench, self.bench_error = None, None
         self._bench_shown = ""
-        t = self.rise_measured.value
         line = self._bench_lines.get(self.bench_line.value)
-        if line is not None:
-            self._bench_saved(line, t)
-            return
-        if self.window_data is None:
+        if line is None and self.design is None:
             self.bench_html.value = note("the bench panel needs a design that evaluates")
             return
+        t = self.rise_measured.value
         if t is None or t <= 0:
             self.bench_html.value = note("enter the rise time read on the oscilloscope")
             return
-        w = self.window_data
-        lo, hi = self.levels.value
-        c_probe = self.c_probe.value
-        try:
-            cb, rise = capacitance_from_rise(t, w.chosen_rp, c_probe, lo=lo, hi=hi)
-        except PinlibError as err:
-            self.bench_error = err
-            self.bench_html.value = inline_error(err)
-            return
-        self.bench = BenchReading(t, c_probe, (lo, hi), w.chosen_rp, float(cb), float(rise),
-                                  w.chosen_cb)
-        self.bench_html.value = self._bench_shown = (
-            f'<div style="{BLOCK};font-size:12px">With Rp = {format_si(w.chosen_rp, "Ω")} (every '
-            f"pull-up on {w.signal.upper()} in parallel): bus capacitance without the probe "
-            f"<b>{format_si(cb, 'F')}</b> (the model's Cb: {format_si(w.chosen_cb, 'F')}); "
-            f"rise time without the probe <b>{format_si(rise, 's')}</b> "
-            f"({lo * 100:.0f}–{hi * 100:.0f} %, as measured).</div>")
+        self._bench_reading(line, t)
 
-    def _bench_saved(self, line, t: float | None) -> None:
-        """The reading on a saved design's line: ``pinlib measured``'s answer."""
+    def _bench_reading(self, line, t: float) -> None:
+        """The reading on the line chosen: ``pinlib measured``'s answer
+        (:func:`pinlib.engines.bench.compare_rise`), on SDA of the bus built here
+        (``line`` None) as on a saved design's line."""
         from pinlib.engines.bench import compare_rise
 
-        if t is None or t <= 0:
-            self.bench_html.value = note("enter the rise time read on the oscilloscope")
-            return
         levels, c_probe = self.levels.value, self.c_probe.value
+        if line is None:
+            design, bus, where = self.design, self.design.buses[0].id, {"signal": self.signal}
+            place = BUILT_LINE[0]
+        else:
+            design, bus, where, place = self.bench_design, line.bus, line.arguments(), None
         try:
-            got = compare_rise(self.bench_design, line.bus, t, c_probe, levels=levels,
-                               **line.arguments())
+            got = compare_rise(design, bus, t, c_probe, levels=levels, **where)
         except PinlibError as err:
             self.bench_error = err
             self.bench_html.value = inline_error(err)
             return
         self.bench = BenchReading(t, c_probe, tuple(levels), got.rp, got.cb, got.rise_alone,
-                                  got.cb_model, line=line, comparison=got)
-        self.bench_html.value = self._bench_shown = comparison_html(got)
+                                  got.cb_model, got, line=line)
+        self.bench_html.value = self._bench_shown = comparison_html(got, place=place)
 
     def save(self, path: str | os.PathLike, *, overwrite: bool = False) -> Path:
         """Write the design file atomically, after loading it back as a check.

@@ -25,6 +25,7 @@ and the outputs are dimmed until the text is valid.
 from __future__ import annotations
 
 import contextlib
+import copy
 import itertools
 import math
 import os
@@ -37,7 +38,7 @@ import ipywidgets as W
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.eseries import values_in_range
-from pinlib.core.quantity import format_si, parse
+from pinlib.core.quantity import format_si, likely_units, parse
 from pinlib.present import charts
 from pinlib.present.widgets.markup import (
     BLOCK,
@@ -207,11 +208,13 @@ class QuantityField:
         one (a plain number, such as εr, has none)."""
         return f"{self._range_text()}, with its unit" if self.unit else self._range_text()
 
+    def _in_range(self, value: float) -> bool:
+        return math.isfinite(value) and (self.lo is None or value >= self.lo) and \
+            (self.hi is None or value <= self.hi) and (self.above is None or value > self.above)
+
     def check(self, value: float, shown_as) -> float:
         """``value`` when it is in range; otherwise an InputError naming the range."""
-        ok = math.isfinite(value) and (self.lo is None or value >= self.lo) and \
-            (self.hi is None or value <= self.hi) and (self.above is None or value > self.above)
-        if not ok:
+        if not self._in_range(value):
             # the value as read, where it differs from the text typed: "20 mhz" is read as
             # 20 mHz (a milli prefix), which the range alone leaves a puzzle
             typed = isinstance(shown_as, str) and math.isfinite(value)
@@ -236,8 +239,30 @@ class QuantityField:
                 raise InputError(M.NOT_A_NUMBER, field=self.name, value=text,
                                  expected="a plain number such as 4.2") from None
         else:
-            value = parse(text, self.unit, field=self.name)
+            try:
+                value = parse(text, self.unit, field=self.name)
+            except InputError as err:
+                raise self._bare_number(err, text) from None
         return self.check(value, text)
+
+    def _bare_number(self, err: InputError, text: str) -> InputError:
+        """A bare number's refusal, whose hint offers the number with its likeliest
+        units, offers only those this control takes: "-3.3" is not told to be written
+        "-3.3 V" in a 0.8 V to 5.5 V supply field, but what the field takes."""
+        if err.problem != M.BARE_NUMBER:
+            return err
+        try:
+            x = float(text)
+            units = likely_units(x, self.unit, self.name)
+            fit = [u for u in units if self._in_range(parse(f"{text} {u}", self.unit))]
+        except (ValueError, InputError):
+            return err
+        if fit == list(units):
+            return err
+        err = copy.copy(err)
+        err.hint = ("add the unit, e.g. " + " or ".join(f'"{text} {u}"' for u in fit) if fit
+                    else f"add the unit; the control's range is {self._range_text()}")
+        return err
 
     def _typed(self, change) -> None:
         if self._writing:

@@ -17,6 +17,7 @@ from pinlib.core.errors import PinlibError
 from pinlib.model.result import CAUTION, BusResult, Group, figure_text, margin_text
 from pinlib.present import charts
 from pinlib.present.report import format_value
+from pinlib.present.values import limit_side, search_bound_words
 
 STATUS_TEXT = {"pass": "PASS", "warn": "WARN", "fail": "FAIL"}
 _BORDER = "border:1px solid #c8c8c8;padding:1px 6px;vertical-align:top"
@@ -95,28 +96,37 @@ def _caption(text: str) -> str:
 def figures_table(figures: dict, caption: str = "Figures") -> str:
     """An HTML table of figures: each by its label (:func:`pinlib.core.labels.figure_label`)
     with its value and unit, a figure that repeats another left out
-    (:func:`pinlib.core.labels.shown_figures`)."""
+    (:func:`pinlib.core.labels.shown_figures`); a search's result at the search's own
+    bound says so ("18 µm or less": :func:`pinlib.present.values.search_bound_words`)."""
     values = {name: f.value for name, f in figures.items()}
     rows = "".join(
         f'<tr title="{e(name)}"><td style="{CELL}">{e(labels.figure_label(name))}</td>'
         f'<td style="{NUM}">{e(figure_text(figures[name]))}'
-        "</td></tr>" for name in labels.shown_figures(values))
+        f"{e(search_bound_words(figures, name))}</td></tr>"
+        for name in labels.shown_figures(values))
     return (f'<table style="{TABLE}">{_caption(caption)}'
             f'<tr><th style="{HEAD}">figure</th><th style="{HEAD}">value</th></tr>{rows}'
             "</table>")
 
 
-def checks_table(bus_result: BusResult, caption: str = "Checks") -> str:
+def checks_table(bus_result: BusResult, caption: str = "Checks", name: str | None = None) -> str:
     """An HTML table of every check of a bus: status (as a word and a colour), check,
-    where, value, limit, margin and the source of the limit; the check's message is the
-    row's tooltip."""
+    where, value, limit (with the side the value keeps, "≤ 400 pF":
+    :func:`pinlib.present.values.limit_side`), margin and the source of the limit; the
+    check's message is the row's tooltip.  ``name``: what the where column calls a check
+    of the whole group (by default the group's id)."""
     head = "".join(f'<th style="{HEAD}">{h}</th>' for h in (
         "status", "check", "where", "value", "limit", "margin", "source"))
     rows = []
     for seg, sig, c in bus_result.all_checks():
-        where = " ".join(str(x) for x in (seg or sig or bus_result.id, c.subject) if x)
+        where = " ".join(str(x) for x in (seg or sig or name or bus_result.id, c.subject)
+                         if x)
         value = "" if isinstance(c.value, bool) else format_value(c.value, c.unit)
         limit = "" if isinstance(c.limit, bool) else format_value(c.limit, c.unit)
+        if limit_side(c):
+            # the side of the limit the value keeps: a window check's nearer end is a
+            # minimum on one row and a maximum on the next
+            limit = f"{limit_side(c)}\u00a0{limit}"
         rows.append(
             f'<tr title="{e(c.id)}: {e(c.message)}"><td style="{CELL}">{badge(c.status)}</td>'
             f'<td style="{CELL}">{e(labels.check_label(c.id))}</td>'
@@ -128,8 +138,10 @@ def checks_table(bus_result: BusResult, caption: str = "Checks") -> str:
             f"<tr>{head}</tr>{''.join(rows)}</table>")
 
 
-def notes_html(groups: list[Group]) -> str:
-    notes = [n for g in groups for n in g.notes]
+def notes_html(groups: list[Group], notes: list[str] | None = None) -> str:
+    """The groups' notes under a "Notes (n)" summary, each once; ``notes`` in place of
+    theirs where the widget words one of them its own way."""
+    notes = [n for g in groups for n in g.notes] if notes is None else list(notes)
     if not notes:
         return ""
     items = "".join(f"<li>{e(n)}</li>" for n in dict.fromkeys(notes))

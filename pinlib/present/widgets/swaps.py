@@ -365,9 +365,11 @@ class SwapExplorer(_Panel):
         cl = self.changes
         if cl is None:
             return note("apply a substitution to see what changes")
+        # the threshold as pinlib swap writes it ("5 %")
+        pct = f"{cl.threshold * 100:g} %"
         if cl.empty:
-            return note("no check changed status, no figure moved beyond "
-                        f"{cl.threshold:.0%}, no part value differs")
+            return note(f"no check changed status, no figure moved more than {pct}, "
+                        "no part value differs")
         out = []
         for bus in self._bus_order():
             status = [c for c in cl.status_changes if self._group_of(c.path) == bus]
@@ -378,7 +380,7 @@ class SwapExplorer(_Panel):
             kind = "Bus" if any(b.id == bus for b in self.design.buses) else "Place"
             head = (f"{kind} <b>{e(bus)}</b>: {len(status)} check"
                     f"{'' if len(status) == 1 else 's'} changed status, {len(rows)} figure"
-                    f"{'' if len(rows) == 1 else 's'} moved more than {cl.threshold:.0%}")
+                    f"{'' if len(rows) == 1 else 's'} moved more than {pct}")
             body = ""
             if status:
                 body += "<ul>" + "".join(self._status_item(c) for c in status) + "</ul>"
@@ -438,7 +440,7 @@ class SwapExplorer(_Panel):
             return charts.spec(
                 charts.pullup_window, w.cb, w.rp_min, w.rp_max, chosen_cb=w.chosen_cb,
                 chosen_rp=w.chosen_rp,
-                title=f"{label}: pull-up window, {bus.id} {w.segment} SDA",
+                title=f"{label}: pull-up window, {_line_place(bus, w.segment, 'SDA')}",
                 chosen_label=f"design: {format_si(w.chosen_rp, 'Ω')} at "
                              f"{format_si(w.chosen_cb, 'F')}")
         if bus.protocol == "spi":
@@ -452,7 +454,7 @@ class SwapExplorer(_Panel):
                            series=list(ed.curves),
                            points=ed.points if len(ed.points[0]) else None,
                            operating=(ed.operating[0], ed.operating[1], ed.operating_label),
-                           title=f"{label}: edge time against load, {bus.id} {sig}")
+                           title=f"{label}: edge time against load, {bus.id}, line {sig}")
 
     def _draw(self) -> None:
         bus = self._focus_bus()
@@ -553,3 +555,11 @@ class SwapExplorer(_Panel):
         return StaticView(caution_html() + self.status_html.value + self.swaps_html.value
                           + self.changes_html.value + self.before.html() + self.after.html()
                           + ranking + self.checks_html.value)
+
+
+def _line_place(bus, segment: str | None, signal: str) -> str:
+    """A line as a person names it (as the bench panel's Line does): ``power, SDA``, and
+    on a bus of several segments ``sensors, segment main-3v3, SDA``.  It read "power
+    power SDA" where the bus's one segment takes the bus's id."""
+    several = len(bus.segments) > 1
+    return bus.id + (f", segment {segment}" if several and segment else "") + f", {signal}"
