@@ -142,6 +142,21 @@ def _thresholds(rx: Endpoint) -> tuple[float, float]:
     return v_il, v_ih
 
 
+def carried_pullup(p: Endpoint) -> float | None:
+    """The pull-up a pin carries that counts on the net: its ``pullup`` (on the board),
+    else its ``pullup_internal`` where the device sets ``internal_pullups``; or None. [Ω]"""
+    if p.pin.pullup is not None:
+        return float(p.pin.pullup.at())
+    if p.device.internal_pullups and p.pin.pullup_internal is not None:
+        return float(p.pin.pullup_internal.at())
+    return None
+
+
+def net_leakage(pins: Sequence[Endpoint]) -> float:
+    """The leakage of these pins together (those that state one). [A]"""
+    return sum(float(p.pin.leakage.at()) for p in pins if p.pin.leakage is not None)
+
+
 def _pullups(loads: Sequence[Endpoint], driver: Endpoint,
              line_pullup: tuple[float, float] | None = None) -> tuple[float | None, float]:
     """Parallel resistance of every pull-up on the net and the rail it pulls to (the
@@ -151,11 +166,7 @@ def _pullups(loads: Sequence[Endpoint], driver: Endpoint,
     if line_pullup is not None:
         g, rail = 1.0 / line_pullup[0], line_pullup[1]
     for p in list(loads) + [driver]:
-        r = None
-        if p.pin.pullup is not None:
-            r = float(p.pin.pullup.at())
-        elif p.device.internal_pullups and p.pin.pullup_internal is not None:
-            r = float(p.pin.pullup_internal.at())
+        r = carried_pullup(p)
         if r:
             g += 1.0 / r
             rail = p.vdd if rail is None else min(rail, p.vdd)
@@ -375,8 +386,7 @@ def _open_drain_levels(driver: Endpoint, loads: Sequence[Endpoint], model: drv.D
     """An open-drain line's low and high levels and the Thevenin resistance of its sink
     against the pull-up: ``(v_lo, v_hi, r_th)`` (the pins' leakage through the pull-up
     lowers the high level). [V, V, Ω]"""
-    leak = sum(float(p.pin.leakage.at()) for p in list(loads) + [driver]
-               if p.pin.leakage is not None)
+    leak = net_leakage(list(loads) + [driver])
     v_hi = max(float(v_pullup) - leak * rp, 0.0)
     r_sink = model.r_fall + rs
     return v_hi * r_sink / (r_sink + rp), v_hi, r_sink * rp / (r_sink + rp)

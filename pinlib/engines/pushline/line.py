@@ -20,7 +20,13 @@ from pinlib.engines.pushline.analysis import (
     _others,
     idle_pin_extremes,
 )
-from pinlib.engines.pushline.drive import _driver_model, _open_drain_model, _pullups
+from pinlib.engines.pushline.drive import (
+    _driver_model,
+    _open_drain_model,
+    _pullups,
+    carried_pullup,
+    net_leakage,
+)
 from pinlib.engines.pushline.pins import Endpoint
 from pinlib.engines.pushline.rules import (
     _FIGURE_UNITS,
@@ -254,7 +260,7 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
     _electrical_length(a, notes)
     _loss_note(a, notes)
     _solve_cases(a, pullup, clock, clock_line, warn_margin, notes)
-    _add_checks(a, res, clock, clock_line, warn_margin)
+    _add_checks(a, res, clock, clock_line, warn_margin, pullup)
     _add_figures(a, res)
     return a
 
@@ -452,8 +458,7 @@ def _held_low(a: LineAnalysis, d: Endpoint, rp: float, rail: float) -> None:
     rail: it never leaves 0 V, so there is no edge to solve. An error, not a failing
     check, since at a corner of the tolerances a board without the line's checks would
     read to the corner search as their worst."""
-    leak = sum(float(p.pin.leakage.at()) for p in _others(a.loads, d) + [d]
-               if p.pin.leakage is not None)
+    leak = net_leakage(_others(a.loads, d) + [d])
     if not leak > 0 or rail - leak * rp > 0:
         return
     vih = [v for v in (r.level("v_ih") for r in a.receivers) if v is not None]
@@ -537,7 +542,8 @@ def _edge_alone(r: float, t_ramp: float, c_pins: float) -> float:
                          lambda: float(drv.edge_time(r, t_ramp, c_pins)))
 
 
-def _add_checks(a: LineAnalysis, res: LineResult, clock, clock_line, warn_margin) -> None:
+def _add_checks(a: LineAnalysis, res: LineResult, clock, clock_line, warn_margin,
+                pullup: dict) -> None:
     """The signal-integrity checks of the final cases, the line delay, the series
     termination "auto" chose, and a note for a waveform that had not settled."""
     for c in _si_checks(a, a.cases, clock, clock_line, warn_margin):
@@ -551,12 +557,11 @@ def _add_checks(a: LineAnalysis, res: LineResult, clock, clock_line, warn_margin
                 "system (losses, skew between lines) outside pinlib")))
     if a.line.series_resistor == "auto":
         res.add(_termination_check(a))
-    pulled = a.line.pullup is not None or any(
-        p.pin.pullup is not None or (p.device.internal_pullups and
-                                     p.pin.pullup_internal is not None) for p in a.loads)
-    # (a line without pull-ups, as every SPI line, in one pass: not one per driver)
-    pullups = {d.ref: open_drain_pullup(a.line, a.loads, d) for d in a.drivers} if pulled \
-        else {}
+    # the open-drain drivers' pull-ups as _driver_models found them; a push-pull
+    # driver's only where the line has any (every SPI line has none: one look at it)
+    pulled = a.line.pullup is not None or any(carried_pullup(p) for p in a.loads)
+    pullups = {**{d.ref: open_drain_pullup(a.line, a.loads, d) for d in a.drivers
+                  if pulled and d.ref not in pullup}, **pullup}
     sinks, notes = sink_checks(a, pullups, warn_margin)
     for c in sinks:
         res.add(c)
