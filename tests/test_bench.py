@@ -503,3 +503,13 @@ def test_a_plausible_reading_gives_no_warning(design):
         assert got.warnings == [], rise
         assert got.to_json()["warnings"] == []
         assert "warning" not in got.format_text()
+
+
+def test_the_panel_keeps_a_level_under_one_percent(design):
+    # the workbench's panel read levels as whole percents: 0.3 % showed as "0–70 %";
+    # it writes them as the command does (invented reading on the test design)
+    from pinlib.present.widgets.benchreading import comparison_html
+
+    got = compare_rise(load_design(design), "i2c0", 250e-9, 10e-12, levels=(0.003, 0.7))
+    html = comparison_html(got)
+    assert "(0.3–70\u00a0%, as measured)" in html, html

@@ -8,7 +8,13 @@ import re
 
 from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
-from pinlib.engines.bench import READING_TOLERANCE, BenchComparison, MeasurableLine
+from pinlib.engines.bench import (
+    READING_TOLERANCE,
+    BenchComparison,
+    MeasurableLine,
+    _cap,
+    _pct,
+)
 from pinlib.present.widgets.markup import BLOCK, e
 
 
@@ -62,10 +68,6 @@ def _held(text: str) -> str:
     return _NUMBER_UNIT.sub("\\1\u00a0", text)
 
 
-def _percent(fraction: float) -> str:
-    return f"{fraction * 100:g} %"
-
-
 def comparison_html(got: BenchComparison, place: str | None = None) -> str:
     """``pinlib measured``'s answer on a line, as the bench panel shows it: the
     reading's Cb and its range, the model's Cb and its contributions, the rise without
@@ -74,23 +76,20 @@ def comparison_html(got: BenchComparison, place: str | None = None) -> str:
     f = format_si
     lo, hi = got.levels
 
-    def cap(v: float) -> str:  # a capacitance of 0 in pF, as the contributions are
-        return f(v, "F") if v else "0 pF"
-
-    parts = ", ".join(f"{k} {cap(v)}" for k, v in got.contributions.items())
+    parts = ", ".join(f"{k} {_cap(v)}" for k, v in got.contributions.items())
     place = got.place() if place is None else place
     # on an I2C or SMBus line the engine's Rp is every pull-up on the line in parallel
     which = ("" if got.segment is None else
              f"; every pull-up on {got.signal.upper()} in parallel")
     text = (
         f"{e(place[0].upper() + place[1:])}, with Rp = {e(f(got.rp, 'Ω'))} "
-        f"(±{e(_percent(got.rp_tolerance))}{e(which)}): bus capacitance without the probe "
-        f"<b>{e(cap(got.cb))}</b> ({e(cap(got.cb_low))} to {e(cap(got.cb_high))} "
-        f"over the pull-up's tolerance and a ±{e(_percent(READING_TOLERANCE))} reading, "
-        f"common practice); the model's Cb <b>{e(cap(got.cb_model))}</b> ({e(parts)})")
+        f"(±{e(_pct(got.rp_tolerance))}{e(which)}): bus capacitance without the probe "
+        f"<b>{e(_cap(got.cb))}</b> ({e(_cap(got.cb_low))} to {e(_cap(got.cb_high))} "
+        f"over the pull-up's tolerance and a ±{e(_pct(READING_TOLERANCE))} reading, "
+        f"common practice); the model's Cb <b>{e(_cap(got.cb_model))}</b> ({e(parts)})")
     if got.rise_alone is not None:
         text += (f"; rise time without the probe <b>{e(f(got.rise_alone, 's'))}</b> "
-                 f"({lo * 100:.0f}–{hi * 100:.0f} %, as measured)")
+                 f"({_pct(lo).removesuffix(' %')}–{_pct(hi)}, as measured)")
     out = f'<div style="{BLOCK};font-size:12px">{_held(text)}.</div>'
     out += "".join(f'<div style="{BLOCK};font-size:12px">Note: {_held(e(n))}</div>'
                    for n in got.notes)
