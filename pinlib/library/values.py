@@ -14,6 +14,7 @@ from typing import Any
 
 from pinlib.core import messages as M
 from pinlib.core.errors import UnitError
+from pinlib.core.protocols import SPI_MODE_NUMBERS
 from pinlib.core.quantity import Threshold, format_si, parse, parse_threshold, range_text
 from pinlib.core.valueclass import value_class
 
@@ -189,7 +190,7 @@ def modes_parser(raw, name=None):
         raise UnitError(M.SPI_MODES_BAD_LIST, field=field, value=raw,
                         expected="e.g. [0, 3]")
     for i, m in enumerate(raw):
-        if isinstance(m, bool) or not isinstance(m, int) or not 0 <= m <= 3:
+        if isinstance(m, bool) or not isinstance(m, int) or m not in SPI_MODE_NUMBERS:
             raise UnitError(M.SPI_MODE_NOT_0_TO_3, field=f"{field}[{i}]" if field else None,
                             value=m, expected="0, 1, 2 or 3")
     if len(set(raw)) != len(raw):
