@@ -94,9 +94,10 @@ def corner_rows(bus: Bus, design: Design, nominal: BusResult, *,
         return None
     n_line = sum(len(ln.checks) for ln in nominal.lines)
     own = [c.id for c in nominal.checks]
-    n_terms, n_f = len(sa.terms), len(_fixed_ids(sa))
+    fixed = _fixed_ids(sa)
+    n_terms, n_f = len(sa.terms), len(fixed)
     if (own[:n_terms] != [t.id for t in sa.terms]
-            or own[n_terms:n_terms + n_f] != _fixed_ids(sa)
+            or own[n_terms:n_terms + n_f] != fixed
             or any(i != "supply-range" for i in own[n_terms + n_f:])):
         return None
     return _Corners(bus, design, nominal, sa, n_line, floor).rows
