@@ -528,6 +528,95 @@ def test_no_cell_shows_an_error_or_a_text_repr(wb):
         f"outputs: {problems}; errors shown in the widgets right after Run All: {marks}")
 
 
+# workbook 05's table of candidates: its headings, its rows' texts (each cell's whole
+# text, the lines it takes, whether it is cut) and its right edge against the notebook's
+_CANDIDATES_TABLE = r"""() => {
+  const panel = document.querySelector('.jp-NotebookPanel:not(.lm-mod-hidden)');
+  const title = [...panel.querySelectorAll('.widget-html-content b')]
+    .find(b => b.textContent.trim() === 'Candidates for the position');
+  const table = title && title.closest('.widget-vbox').querySelector('table');
+  if (!table) return null;
+  const text = el => el.innerText.replace(/\s+/g, ' ').trim();
+  const cell = td => { const r = document.createRange(); r.selectNodeContents(td);
+    const tops = new Set([...r.getClientRects()].filter(x => x.width > 0)
+                         .map(x => Math.round(x.top)));
+    return {text: text(td), lines: tops.size, cut: td.scrollWidth > td.clientWidth + 1}; };
+  const outer = panel.querySelector('.jp-WindowedPanel-outer').getBoundingClientRect();
+  return {heads: [...table.querySelectorAll('th')].map(text),
+          rows: [...table.querySelectorAll('tr')].filter(tr => tr.querySelector('td'))
+                .map(tr => [...tr.querySelectorAll('td')].map(cell)),
+          right: table.getBoundingClientRect().right, panelRight: outer.right};
+}"""
+
+
+def _cli_candidates(folder, ref: str) -> dict[str, tuple[str, str]]:
+    """``pinlib candidates`` run on the demo design as a user runs it, at a width that
+    keeps every column: each part's worst margin and the check that sets it."""
+    import re
+    import subprocess
+
+    env = {**os.environ, "COLUMNS": "250"}
+    got = subprocess.run([sys.executable, "-m", "pinlib", "candidates",
+                          "designs/demo-board.toml", ref, "--top", "50"], cwd=folder,
+                         env=env, capture_output=True, text=True, timeout=120)
+    assert got.returncode in (0, 1), got.stderr
+    lines = got.stdout.splitlines()
+    head = next(i for i, ln in enumerate(lines) if ln.startswith("#  "))
+    out = {}
+    for ln in lines[head + 1:]:
+        if not re.match(r"\d+ ", ln):
+            break
+        cols = re.split(r"\s{2,}", ln.strip())
+        out[cols[1].removesuffix(" *")] = (cols[3], cols[4])
+    return out
+
+
+def test_the_candidates_table_says_what_each_column_is_in_the_commands_words(wb, lab):
+    """Workbook 05's candidates for U4 (a position on a bus of two segments), as an
+    engineer choosing a substitute reads them at 1400 px: each heading says what its
+    column holds (the margin's unit, which segment and lines the figures are of), each
+    worst margin and the check that sets it read as ``pinlib candidates`` writes them,
+    and no cell is cut or past the notebook's edge."""
+    if not wb.spec.name.startswith("05"):
+        pytest.skip("the candidates table is workbook 05's")
+    _, folder = lab
+    wb.choose("Device", "U4")
+    wb.settle()
+    wb.page.get_by_text("Candidates for the position").first.scroll_into_view_if_needed()
+    wb.page.mouse.wheel(0, 250)
+    wb.page.wait_for_timeout(300)
+    wb.screenshot("candidates")
+    table = wb.page.evaluate(_CANDIDATES_TABLE)
+    assert table is not None, "no candidates table under 'Candidates for the position'"
+    heads = table["heads"]
+    assert "worst margin % of its limit" in heads, heads
+    assert any(h.startswith("set by") for h in heads), heads
+    # U4 sits on segment main-3v3 of bus sensors: the figures are that segment's
+    assert any("bus sensors, segment main-3v3, the worse of SDA and SCL" in h
+               for h in heads), heads
+    for figure in ("Bus capacitance Cb", "Rise time tr", "Low level VOL",
+                   "Pull-up resistor Rp"):
+        assert figure in heads, (figure, heads)
+    cli = _cli_candidates(folder, "U4")
+    rows = table["rows"]
+    assert len(rows) == 10, rows
+    wrong = []
+    for row in rows:
+        part = row[1]["text"].removesuffix(" (now)")
+        margin, by = row[3]["text"], row[4]["text"]
+        if (margin, by) != cli[part]:
+            wrong.append(f"{part}: shows {margin!r}, {by!r}; pinlib candidates "
+                         f"writes {cli[part]!r}")
+    assert not wrong, "\n  ".join(["not in the command's words:"] + wrong)
+    # a failing candidate's margin below zero, written as the command writes it
+    assert any(r[2]["text"] == "FAIL" and r[3]["text"][0] in "-−" for r in rows), rows
+    cut = [c["text"] for r in rows for c in r if c["cut"]]
+    assert not cut, f"cells cut: {cut}"
+    # the check that sets a margin is read on one line at this width
+    assert all(r[4]["lines"] == 1 for r in rows), [(r[4]["text"], r[4]["lines"]) for r in rows]
+    assert table["right"] <= table["panelRight"] + 1, table
+
+
 def test_changing_a_control_changes_the_chart(wb):
     spec: Spec = wb.spec
     what, option = spec.change

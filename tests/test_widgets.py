@@ -935,6 +935,51 @@ def test_swap_candidates_ranking(explorer, monkeypatch):
     assert "pinlib.studies.candidates" in explorer.candidates_note.value
 
 
+def _ranking_cells(table_html: str) -> tuple[list[str], list[list[str]]]:
+    """A ranking table's headings and rows as plain text (tags dropped, spaces joined)."""
+    def plain(x):
+        return " ".join(html.unescape(re.sub(r"<[^>]+>", " ", x)).split())
+
+    heads = [plain(h) for h in re.findall(r"<th[^>]*>(.*?)</th>", table_html, re.S)]
+    rows = [[plain(c) for c in re.findall(r"<td[^>]*>(.*?)</td>", tr, re.S)]
+            for tr in re.findall(r"<tr>(.*?)</tr>", table_html, re.S) if "<td" in tr]
+    return heads, rows
+
+
+def test_swap_ranking_table_names_its_figures_place_and_each_check_as_the_command():
+    """Workbook 05's candidates table: the figures' heading names the bus, segment and
+    lines they are of; each worst margin and the check that sets it read as `pinlib
+    candidates` writes them (the bus named only where the position is on several)."""
+    pytest.importorskip("pinlib.studies.candidates")
+    from pinlib.studies.candidates import rank_candidates
+
+    design = load_design(DEMO)
+    # U1 sits on four buses: the figures are those of the bus charted, and say so
+    r = rank_candidates(design, "U1")
+    heads, rows = _ranking_cells(SwapExplorer._ranking_html(r, "flash"))
+    assert "figures of bus flash the bus chosen in Chart bus" in heads, heads
+    assert "Highest clock f(max)" in heads, heads
+    text = r.format_text(None)  # the command's table, every column
+    for row in rows:
+        part, margin, by = row[1].removesuffix(" (now)"), row[3], row[4]
+        line = next(ln for ln in text.splitlines()
+                    if re.match(rf"\d+ +{re.escape(part)}( \*)? ", ln))
+        assert f"  {margin}  " in line and f"  {by}  " in line, (row, line)
+        assert by.split()[0] in ("sensors", "power", "flash", "display"), by
+    # U4 on one bus of two segments: the segment's figures, no bus before each check
+    r = rank_candidates(design, "U4")
+    heads, rows = _ranking_cells(SwapExplorer._ranking_html(r, "sensors"))
+    assert "figures of bus sensors, segment main-3v3, the worse of SDA and SCL" in heads
+    assert "worst margin % of its limit" in heads, heads
+    assert not any(row[4].startswith("sensors ") for row in rows), rows
+    # Q1 joins two segments; its worst margin is the gate drive's, in volts
+    r = rank_candidates(design, "Q1")
+    heads, rows = _ranking_cells(SwapExplorer._ranking_html(r, "sensors"))
+    assert "worst margin % of its limit, or in V" in heads, heads
+    assert "figures of bus sensors, segment main-3v3, the worse of SDA and SCL" in heads
+    assert rows[0][3] == r.candidates[0].margin_text(1) and rows[0][3].endswith(" mV")
+
+
 def _listed(x) -> list[str]:
     """What `pinlib swap` lists for the explorer's substitutions (status changes with
     their values and limits, moved figures each quantity once), as the widget must show it

@@ -63,6 +63,10 @@ __all__ = [
     "FIGURES",
     "FIXED_CHECKS",
     "bus_figures",
+    "bus_text",
+    "figures_place",
+    "where_parts",
+    "where_text",
     "Candidate",
     "Ranking",
     "positions",
@@ -90,6 +94,20 @@ def bus_figures(protocol: str) -> tuple:
     if protocol in OPEN_DRAIN_PROTOCOLS:
         return FIGURES["open-drain"]
     return FIGURES["gpio" if protocol == "gpio" else "push-pull"]
+
+
+def figures_place(row: dict) -> str:
+    """What a bus row's :data:`FIGURES` are figures of (a row of :attr:`Ranking.buses`):
+    on an open-drain bus the segment the position sits on (a bridging part: the first
+    it joins, as :attr:`Ranking.buses` names it), the worse of its SDA and SCL lines
+    (the pull-up resistor serves both); on a GPIO bus the slowest edge of its lines; on
+    an SPI bus the bus's highest clock."""
+    where = f"bus {row['bus']}" + (f", segment {row['segment']}" if row.get("segment") else "")
+    if row["protocol"] in OPEN_DRAIN_PROTOCOLS:
+        return f"{where}, the worse of SDA and SCL"
+    if row["protocol"] == "gpio":
+        return f"{where}, the slowest edge of its lines"
+    return where
 
 #: Checks no part in a plain position can move: the bus clock against its mode's
 #: limit, a pass-transistor translator's gate drive and the facing of static-offset
@@ -258,7 +276,7 @@ class Ranking:
     def format_text(self, top: int | None = 20, width: int | None = None) -> str:
         """The ranking as text; ``width``: characters per line (None: no limit), the
         table's trailing figure columns left out (and named) where they do not fit."""
-        where = "; ".join(_bus_text(b) for b in self.buses)
+        where = "; ".join(bus_text(b) for b in self.buses)
         lines = [f"position {self.ref}, now {self.current}: {where}", self.count_text()]
         if width is not None:
             lines = [w for ln in lines for w in wrap(ln, width)]
@@ -402,7 +420,7 @@ def _bus_rows(places) -> list[dict]:
     return rows
 
 
-def _bus_text(row: dict) -> str:
+def bus_text(row: dict) -> str:
     """A bus of the position as the ranking's heading names it: ``bus sensors (i2c,
     segment main-3v3, peripheral)``; a bridging part by the segments it joins, ``bus
     sensors (i2c, bridge between segments main-3v3 and sensor-1v8)``."""
@@ -469,10 +487,19 @@ def where_text(wc: dict, multi: bool) -> str:
     """Where a check is, as the ranking names it: ``main-3v3 Noise margin low SDA``; a
     line's check with its signal in capitals, as ``pinlib check`` writes it, and its
     subject, the receiver (``SCLK Overshoot U3``: on a route each receiver has its own)."""
+    return " ".join(x for x in where_parts(wc, multi) if x)
+
+
+def where_parts(wc: dict, multi: bool) -> tuple[str, str]:
+    """:func:`where_text` in its two parts, the place and the check: ``("main-3v3",
+    "Noise margin low SDA")``; the place is the bus (``multi``: the position is on more
+    than one) and the segment, empty where neither is named.  The workbook sets the place
+    apart from the check in the same words."""
     line = wc.get("line")
-    return " ".join(x for x in (wc["bus"] if multi else None, wc.get("segment"),
-                                line.upper() if line else None, check_label(wc["id"]),
-                                wc.get("subject")) if x)
+    place = " ".join(x for x in (wc["bus"] if multi else None, wc.get("segment")) if x)
+    check = " ".join(x for x in (line.upper() if line else None, check_label(wc["id"]),
+                                 wc.get("subject")) if x)
+    return place, check
 
 
 def _with_status_by(where: dict | None, rank: int | None, fixed: dict | None,

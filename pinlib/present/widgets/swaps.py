@@ -506,30 +506,53 @@ class SwapExplorer(_Panel):
     @staticmethod
     def _ranking_html(r, bus: str | None = None, top: int = TOP) -> str:
         """The best ``top`` candidates, with the figures of one bus of the position (the
-        bus charted; the first when it is not one of the ranking's)."""
-        from pinlib.studies.candidates import bus_figures, where_text
+        bus charted; the first when it is not one of the ranking's).  In the words of
+        ``pinlib candidates``: the position's buses, each margin and the check that sets
+        it (the bus named only where the position is on more than one); every heading
+        says what its column holds, the figures' heading of which bus, segment and
+        lines they are."""
+        from pinlib.studies.candidates import bus_figures, bus_text, figures_place, where_parts
 
         rows_of = {b["bus"]: b for b in r.buses}
         shown = rows_of.get(bus) or (r.buses[0] if r.buses else None)
-        cols = []
-        if shown is not None:
-            cols = [(shown["bus"], name, unit) for name, unit in bus_figures(shown["protocol"])]
-        head = ["#", "part", "status", "worst margin", "set by"] + [
-            short_label(n) for _, n, _ in cols]
+        cols = [] if shown is None else [(shown["bus"], n, u)
+                                         for n, u in bus_figures(shown["protocol"])]
+        listed = r.candidates[:top]
+        multi = len(r.buses) > 1  # as the command names a check's bus
+        units = sorted({(c.worst_check or {}).get("margin_unit") for c in listed} - {None})
+        span = ' rowspan="2"' if cols else ""
+        head = "".join(f'<th style="{HEAD}"{span}>{h}</th>' for h in (
+            "#", "part", "status",
+            _heading("worst margin", "% of its limit" + "".join(f", or in {u}" for u in units)),
+            _heading("set by", "the check of that margin")))
+        second = ""
+        if cols:
+            head += (f'<th style="{HEAD}" colspan="{len(cols)}">' + _heading(
+                f"figures of {figures_place(shown)}",
+                "the bus chosen in Chart bus" if multi else "") + "</th>")
+            second = "<tr>" + "".join(f'<th style="{HEAD}">{e(_figure_heading(n))}</th>'
+                                      for _, n, _ in cols) + "</tr>"
         rows = []
-        for i, c in enumerate(r.candidates[:top], 1):
+        for i, c in enumerate(listed, 1):
             wc = c.worst_check or {}
             if c.status == "error":
-                by = c.error or ""
-            else:  # as the ranking names it (the line's signal in capitals)
-                by = where_text(wc, multi=True) if c.worst_check else ""
+                by = e(c.error or "")
+            elif c.worst_check:
+                place, check = where_parts(wc, multi)
+                # on one line: a few words (the headings wrap to make room)
+                by = ('<span style="white-space:nowrap">' + (
+                    f'<span style="color:#4a4a4a">{e(place)}</span> ' if place else "")
+                      + e(check) + "</span>")
+            else:
+                by = ""
+            # a part id is never broken (it is copied into the design)
             cells = [f'<td style="{NUM}">{i}</td>',
-                     f'<td style="{CELL}"><code>{e(c.part)}</code>'
+                     f'<td style="{CELL};white-space:nowrap"><code>{e(c.part)}</code>'
                      + (" (now)" if c.current else "") + "</td>",
-                     f'<td style="{CELL}">{badge(c.status)}'
-                     + ("†" if (c.worst_check or {}).get("status_by") else "") + "</td>",
-                     f'<td style="{NUM}">{e(c.margin_text(0))}</td>',
-                     f'<td style="{CELL}">{e(by.strip())}</td>']
+                     f'<td style="{CELL};white-space:nowrap">{badge(c.status)}'
+                     + ("†" if wc.get("status_by") else "") + "</td>",
+                     f'<td style="{NUM}">{e(c.margin_text(1))}</td>',
+                     f'<td style="{CELL}">{by}</td>']
             for b, n, unit in cols:
                 v = c.figures.get(b, {}).get(n)
                 cells.append(f'<td style="{NUM}">'
@@ -537,14 +560,12 @@ class SwapExplorer(_Panel):
             rows.append("<tr>" + "".join(cells) + "</tr>")
         more = (f"<div>{len(r.candidates) - top} more not shown</div>"
                 if len(r.candidates) > top else "")
-        which = (f"; figures of bus {e(shown['bus'])}" if shown is not None and
-                 len(r.buses) > 1 else "")
         notes = "".join(f"<li>{e(n)}</li>" for n in
-                        r.status_notes(r.candidates[:top]) + list(r.notes))
+                        r.status_notes(listed) + list(r.notes))
+        where = "; ".join(bus_text(b) for b in r.buses)
         return (f'<div style="{BLOCK};font-size:12px">Position {e(r.ref)}, now '
-                f"<code>{e(r.current)}</code>: {e(r.count_text())}{which}</div>"
-                f'<table style="{TABLE}"><tr>'
-                + "".join(f'<th style="{HEAD}">{e(h)}</th>' for h in head) + "</tr>"
+                f"<code>{e(r.current)}</code>: {e(where)}<br>{e(r.count_text())}</div>"
+                f'<table style="{TABLE}"><tr>{head}</tr>{second}'
                 + "".join(rows) + "</table>" + block(more, size=11)
                 + (f'<ul style="{BLOCK};font-size:11px">{notes}</ul>' if notes else ""))
 
@@ -555,6 +576,21 @@ class SwapExplorer(_Panel):
         return StaticView(caution_html() + self.status_html.value + self.swaps_html.value
                           + self.changes_html.value + self.before.html() + self.after.html()
                           + ranking + self.checks_html.value)
+
+
+def _heading(text: str, under: str = "") -> str:
+    """A column heading's HTML: what the column holds, and under it in smaller type its
+    unit or where its figures are from."""
+    return e(text) + (f'<div style="font-weight:400;font-size:11px;color:#4a4a4a">'
+                      f"{e(under)}</div>" if under else "")
+
+
+def _figure_heading(name: str) -> str:
+    """A figure column's heading: its label with the symbol ``pinlib candidates`` heads
+    it with (``Bus capacitance Cb``, ``Pull-up resistor Rp``, ``Highest clock
+    f(max)``); the units are in the cells, each with its prefix."""
+    label, symbol = figure_label(name), short_label(name)
+    return label if symbol.lower() in label.lower() else f"{label} {symbol}"
 
 
 def _line_place(bus, segment: str | None, signal: str) -> str:
