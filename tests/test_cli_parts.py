@@ -196,6 +196,26 @@ def test_show_values_with_provenance_and_origin(lib, capsys):
     assert "3.6 V" in rows["supply.max"] and "1.7 V" in rows["supply.min"]
 
 
+def test_show_provenance_is_the_team_part_s_own(lib, capsys):
+    # a team part written by 'parts new' without --source: its provenance line read
+    # "datasheet, common practice", the class's source beside the team part's basis
+    # (a class whose provenance has a date: without one, it was replaced whole)
+    _, team = lib
+    (team / "cls.toml").write_text(BASE.replace('id = "base"', 'id = "cls"').replace(
+        'source = "common practice" }', 'source = "common practice", recorded = 2026-12-01 }'),
+        encoding="utf-8")
+    code, _, _ = run(capsys, "parts", "new", "x1", "--from", "cls", "--into", "team",
+                       "--library", "team")
+    assert code == 0
+    code, out, _ = run(capsys, "parts", "show", "x1", "--library", "team")
+    assert code == 0
+    (line,) = [ln for ln in out.splitlines() if "provenance:" in ln]
+    assert line.split("provenance: ")[1].startswith("datasheet, recorded "), out
+    assert "common practice" not in line
+    code, out, _ = run(capsys, "parts", "show", "x1", "--library", "team", "--json")
+    assert json.loads(out)["provenance"]["source"] == ""
+
+
 def test_show_head_fits_80_columns(lib, capsys, monkeypatch, tmp_path):
     # a team part overriding a built-in one whose file lies deep: the line naming the
     # overridden file ran to 99 columns and more, unwrapped

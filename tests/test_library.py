@@ -334,6 +334,31 @@ def test_three_level_chain_and_origins(builtin, tmp_path):
     assert lib.path_of("mid") == mid and lib.path_of("leaf") == leaf
 
 
+def test_a_part_s_provenance_is_its_own_file_s_whole(builtin, tmp_path):
+    # invented: a team part states its basis (datasheet) and no source yet, as
+    # 'pinlib parts new' writes it.  Its provenance merged key by key with the class's
+    # and read "datasheet, common practice": the class's source claimed for the team
+    # part's datasheet, and cited for every value the team part states without one
+    team = tmp_path / "team"
+    write(team, "cls.toml", part("cls", "base", """
+        provenance = { basis = "generic", source = "common practice", recorded = 2026-12-01 }
+        """))
+    write(team, "x.toml", part("x", "cls", """
+        provenance = { basis = "datasheet", recorded = 2026-12-05 }
+
+        [timing]
+        f_max = "1 MHz"
+        """))
+    p = load_library([team]).parts["x"]
+    assert (p.provenance.basis, p.provenance.source) == ("datasheet", "")
+    assert (p.timing.f_max.basis, p.timing.f_max.source) == ("datasheet", None)
+    assert p.provenance.recorded.isoformat() == "2026-12-05"
+    # a part that states no provenance at all still takes its class's
+    write(team, "x.toml", part("x", "cls"))
+    p = load_library([team]).parts["x"]
+    assert (p.provenance.basis, p.provenance.source) == ("generic", "common practice")
+
+
 def test_a_value_table_replaces_the_parents_whole(builtin, tmp_path):
     team = tmp_path / "team"
     write(team, "x.toml", part("x", "base", '[pins.sda]\nc_in = { value = "6 pF" }\n'))

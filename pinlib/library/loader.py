@@ -53,6 +53,10 @@ BUILTIN_DIR = Path(os.environ.get("PINLIB_BUILTIN",
                                   Path(__file__).resolve().parents[1] / "devices"))
 
 _NOT_INHERITED = {"id", "extends", "abstract"}
+#: Tables that describe the file that states them: a part that states its own replaces
+#: its class's whole (merged key by key, a team part's basis took its class's source and
+#: date: "datasheet, typical of the class").  A part that states none takes its class's.
+_REPLACED_WHOLE = {"provenance"}
 
 #: Bounds of what the library reads (each refusal names the limit): a part file holds
 #: a few kilobytes; a library folder is a folder of part files, not a disk.
@@ -179,6 +183,7 @@ def _merge(parent: dict, child: dict, parent_origin: dict, child_id: str, top=Tr
             merged[key] = value
             continue
         if (isinstance(value, dict) and isinstance(merged.get(key), dict)
+                and not (top and key in _REPLACED_WHOLE)
                 and not _is_value_table(value) and not _is_value_table(merged[key])):
             sub, sub_origin = _merge(merged[key], value,
                                      {k[1:]: v for k, v in groups.get(key, {}).items()},
