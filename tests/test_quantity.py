@@ -193,7 +193,8 @@ def test_a_thousands_comma_is_not_read_as_a_decimal_one():
 
 
 @pytest.mark.parametrize(("value", "unit", "suggested"), [
-    ("8", "F", '"8 pF"'), (8, "F", '"8 pF"'), (3.3, "V", '"3.3 V"'), ("4700", "Ω", '"4700 kΩ"'),
+    # 4700 for a resistance is 4700 Ω written without its unit (it offered "4700 kΩ")
+    ("8", "F", '"8 pF"'), (8, "F", '"8 pF"'), (3.3, "V", '"3.3 V"'), ("4700", "Ω", '"4.7 kΩ"'),
 ])
 def test_bare_number_suggests_the_unit(value, unit, suggested):
     with pytest.raises(UnitError, match="bare number") as info:
@@ -458,6 +459,33 @@ def test_a_bare_number_is_offered_its_likely_units(x, unit, field, units):
     with pytest.raises(UnitError) as info:
         parse(str(x), unit, field=field)
     assert f'"{x} {units[0]}"' in info.value.hint
+
+
+@pytest.mark.parametrize("x, unit, field, offered, not_offered", [
+    # common practice, no source: a number that, read in a prefixed unit, is far beyond
+    # any board value was written in the SI unit itself (as Python and spreadsheets
+    # write it).  The hint offered "4700 kΩ", "400000 MHz", "2.5e-09 ns".
+    (4700, "Ω", "pullup", ['"4.7 kΩ"'], ['"4700 kΩ"', '"4700 Ω"']),
+    (400000, "Hz", "clock", ['"400 kHz"'], ["MHz", "400000"]),
+    (25e6, "Hz", "clock", ['"25 MHz"'], ["25000000"]),
+    (1000, "Hz", "clock", ['"1000 kHz"', '"1 kHz"'], ["1000 MHz"]),
+    (1e-11, "F", "extra_capacitance", ['"10 pF"'], ["e-11"]),
+    (2.5e-9, "s", "t_setup", ['"2.5 ns"'], ["e-09"]),
+    (1e-10, "F/m", "capacitance", ['"1 pF/cm"'], ["e-10"]),
+    (0.0002, "m", "width", ['"200 µm"'], ["0.0002 mm"]),
+    (0.003, "A", "i_ol", ['"0.003 mA"', '"3 mA"'], []),
+    # where both readings are board values, the likely units stay as they were
+    (33, "Ω", "series_resistor", ['"33 Ω"', '"33 kΩ"'], []),
+    (400, "Hz", "clock", ['"400 kHz"'], []),
+])
+def test_a_bare_number_in_the_si_unit_is_offered_as_such(x, unit, field, offered,
+                                                         not_offered):
+    for written in (x, str(x)):
+        with pytest.raises(UnitError) as info:
+            parse(written, unit, field=field)
+        hint = info.value.hint
+        assert all(o in hint for o in offered), hint
+        assert not any(n in hint for n in not_offered), hint
 
 
 def test_a_bare_number_is_given_one_example_its_own():

@@ -221,8 +221,36 @@ def likely_units(x: float, unit: str, field: str | None = None) -> tuple[str, ..
 
 
 def _with_unit(number: str, x: float, unit: str, field: str | None) -> str:
-    """``"20 MHz" or "20 kHz"``: the number with its likeliest units."""
-    return " or ".join(f'"{number} {u}"' for u in likely_units(x, unit, field))
+    """``"20 MHz" or "20 kHz"``: the number with its likeliest units; a number that is
+    most likely in the SI unit itself is offered as that, with its prefix
+    (``4700`` for a resistance: ``"4.7 kΩ"``)."""
+    units, si = _bare_readings(x, unit, field)
+    texts = [f'"{number} {u}"' for u in units]
+    if si:
+        texts.append(f'"{format_si(x, unit, 12)}"')
+    return " or ".join(texts)
+
+
+def _bare_readings(x: float, unit: str, field: str | None) -> tuple[tuple[str, ...], bool]:
+    """The prefixed units a bare number is offered in, and whether its reading in the SI
+    unit itself is offered too (common practice, no source).  A number under 0.001 (a
+    capacitance of 1e-11, a time of 2.5e-09), a resistance from 1000 (4700) or a
+    frequency from 10000 (400000) reads as no board value in a prefixed unit, and is
+    taken as written in the SI unit, as Python and spreadsheets write it.  A frequency
+    from 1000 is not offered in MHz (a GHz clock), but in kHz and in Hz; a current under
+    1 A in mA and in A."""
+    x_abs = abs(x)
+    units = likely_units(x, unit, field)
+    if unit == "%":
+        return units, False
+    if (0 < x_abs < 1e-3 or (unit == "Ω" and x_abs >= 1e3)
+            or (unit == "Hz" and x_abs >= 1e4)):
+        return (), True
+    if unit == "Hz" and x_abs >= 1e3:
+        return tuple(u for u in units if u != "MHz"), True
+    if unit == "A" and 0 < x_abs < 1:
+        return units, True
+    return units, False
 
 
 def _bare_hint(x: float, unit: str, field: str | None = None) -> str:
