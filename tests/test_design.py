@@ -296,6 +296,36 @@ def test_misspelt_title_is_named_before_the_missing_title(tmp_path):
         load_design(path)
 
 
+def test_a_part_file_named_as_a_library_folder_is_told_to_name_its_folder(
+        tmp_path, monkeypatch, capsys):
+    # a person names the team part's file where its folder belongs: it read "library
+    # folder not found" (the file is there) or "does not exist" for the design's line
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    team = tmp_path / "team"
+    team.mkdir()
+    part_file = team / "x.toml"
+    part_file.write_text("", encoding="utf-8")
+    good = write(tmp_path, ONE_BUS.replace("PART", "t-target"))
+    assert main(["check", str(good), "--library", str(part_file)]) == 2
+    err = " ".join(capsys.readouterr().err.split())
+    assert "field '--library': a file where a library folder belongs" in err, err
+    assert f"name the folder that holds the part files: {team}" in err
+    assert "not found" not in err
+    monkeypatch.setenv("PINLIB_LIBRARY", str(part_file))
+    assert main(["parts", "list"]) == 2
+    err = " ".join(capsys.readouterr().err.split())
+    assert "field 'PINLIB_LIBRARY': a file where a library folder belongs" in err, err
+    monkeypatch.delenv("PINLIB_LIBRARY")
+    own = tmp_path / "own.toml"
+    own.write_text(HEAD.replace("library = [", 'library = ["team/x.toml", ')
+                   + ONE_BUS.replace("PART", "t-target"), encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(own)
+    assert info.value.problem == "a file where a library folder belongs"
+    assert info.value.field == "library[0]" and info.value.line == 3
+    assert info.value.hint == "name the folder that holds the part files: team"
+
+
 def test_missing_library_folder_blames_its_source(tmp_path, monkeypatch, capsys):
     # 13.18: the design's own line, --library or PINLIB_LIBRARY, whichever named it; exit 2
     from pinlib.core.errors import InputError

@@ -542,6 +542,20 @@ def _(env):
     return env.cli("parts", "list")
 
 
+@case("LIBRARY_IS_A_FILE")
+def _(env):  # a team part's file where its folder belongs, as the loader meets it
+    lib = load_library([env.write("team/p.toml", PART.format(id="p"))], env=False)
+    (err,) = lib.problems
+    return err
+
+
+@case("LIBRARY_FILE_HINT", lambda: M.LIBRARY_FILE_HINT.format(folder="team"))
+def _(env):
+    env.write("team/p.toml", PART.format(id="p"))
+    env.monkeypatch.chdir(env.tmp)
+    return env.cli("parts", "list", "--library", "team/p.toml")
+
+
 # 13.15 and 13.19: cable classes and implausible values (pinlib.library.plausible)
 _CABLE = """\
 format = "pinlib.part/1"

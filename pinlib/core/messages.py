@@ -81,6 +81,9 @@ QUANTITY_TOO_LONG = "{n} characters: too long for a quantity (at most {limit})"
 NOT_A_PART_FILE = "not a part-class file"
 PART_NEEDS_ID = "a part file needs an id"
 LIBRARY_FOLDER_NOT_FOUND = "library folder not found"
+# folders.py, design/load.py and loader.py: a file (a team part's) named as a library
+LIBRARY_IS_A_FILE = "a file where a library folder belongs"
+LIBRARY_FILE_HINT = "name the folder that holds the part files: {folder}"
 # folders.py (the hint of LIBRARY_FOLDER_NOT_FOUND when a command was told to read it)
 FOLDER_NAMED_BY = "{source} names it: correct or remove it there"
 DUPLICATE_TEAM_ID = "two team parts share one id"

@@ -531,6 +531,9 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
         if not folder.is_dir():
             err = LibraryError(M.LIBRARY_FOLDER_NOT_FOUND, file=str(folder),
                                hint=_builtin_hint() if is_builtin else None)
+            if folder.exists():
+                err = LibraryError(M.LIBRARY_IS_A_FILE, file=str(folder),
+                                   hint=M.LIBRARY_FILE_HINT.format(folder=folder.parent))
             if strict or is_builtin:  # without the built-in parts every id is unknown
                 raise err
             lib.problems.append(err)
