@@ -460,6 +460,20 @@ def test_record_names_the_typ_field_it_refuses(lib, capsys, typ, problem):
     assert (lib[1] / "eeprom.toml").read_bytes() == before
 
 
+@pytest.mark.parametrize("field, expected", [("c_in", "PIN.c_in"),
+                                             ("sides.a.v_il", "sides.a.PIN.v_il")])
+def test_record_of_a_pin_field_without_its_pin_says_so(lib, capsys, field, expected):
+    # "c_in" was read as a pin named c_in: "field 'pins.c_in': the path stops before a
+    # field", when the field is there and its pin is what is missing
+    before = (lib[1] / "eeprom.toml").read_bytes()
+    code, _, err = run(capsys, "parts", "record", "eeprom", field, "5 pF",
+                       "--source", "rev B", "--library", "team")
+    err = " ".join(err.split())
+    assert code == 2 and f"field '{field}': a pin's field without its pin" in err, err
+    assert f"(got '{field}'); expected {expected}" in err and "stops before" not in err
+    assert (lib[1] / "eeprom.toml").read_bytes() == before
+
+
 def test_record_holds_a_typical_level_to_the_limit_s_range(lib, capsys):
     # "9 VDD" is refused as a level; as its typical value it was stored
     before = (lib[1] / "eeprom.toml").read_bytes()

@@ -1125,6 +1125,11 @@ def _(env):
     return _fails(lambda e: resolve_path("sides.a"), env)
 
 
+@case("FIELD_WITHOUT_PIN")
+def _(env):
+    return _fails(lambda e: resolve_path("c_in"), env)
+
+
 # ---------------------------------------------------------------- library: recording
 @case("BUILTIN_NOT_WRITTEN")
 def _(env):

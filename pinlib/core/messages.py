@@ -167,6 +167,7 @@ VALUE_FIELD_NO_SUBFIELDS = "a value field has no sub-fields"
 PATH_STOPS_AT_NAMED_TABLE = "the path stops at a table of named items"
 FIELD_TAKES_NO_VALUE = "this field takes no recorded value: {what}"
 PATH_STOPS_BEFORE_FIELD = "the path stops before a field"
+FIELD_WITHOUT_PIN = "a pin's field without its pin"
 # record.py
 BUILTIN_NOT_WRITTEN = "the built-in library is not written to"
 BUILTIN_NOT_WRITTEN_BECAUSE = "the built-in library is not written to ({reason})"
