@@ -488,6 +488,16 @@ def test_a_bare_number_in_the_si_unit_is_offered_as_such(x, unit, field, offered
         assert not any(n in hint for n in not_offered), hint
 
 
+@pytest.mark.parametrize("text, fixed", [("3V3", '"3.3 V"'), ("1V8", '"1.8 V"'),
+                                         ("0V9", '"0.9 V"'), ("5V0", '"5.0 V"')])
+def test_a_rail_written_with_its_unit_for_a_point_is_offered_as_a_value(text, fixed):
+    # common practice, no source: rails are named 3V3, 1V8 on schematics; it read
+    # "unknown unit 'V3'" with no hint
+    with pytest.raises(UnitError) as info:
+        parse(text, "V", field="supply")
+    assert fixed in info.value.hint, info.value.hint
+
+
 def test_a_bare_number_is_given_one_example_its_own():
     # '28' for a length: the hint writes the user's number with units, so the expected
     # part no longer adds the generic "(e.g. '14 cm')" beside it

@@ -331,6 +331,9 @@ def _unit_hint(text: str, number: str, rest: str, unit: str) -> str | None:
         return f'a decimal comma: write a point, "{fixed}"'
     if rest in _PREFIX:
         return f'a prefix without its unit: write "{number} {rest}{unit}"'
+    if unit == "V" and re.fullmatch(r"V\d+", rest) and re.fullmatch(r"\d+", number):
+        # a rail's schematic name, 3V3: the unit where the decimal point goes
+        return f'the unit for the decimal point: write "{number}.{rest[1:]} V"'
     shown = []
     # a clock in MHz before mHz; a current in mA before MA
     letters = sorted([*_PREFIX.items(), ("", 1.0)], key=lambda kv: kv[1],
