@@ -114,7 +114,8 @@ def add_parser(subparsers) -> None:
     common = argparse.ArgumentParser(add_help=False)
     common.add_argument("--library", metavar="DIR", action="append", default=[],
                         help="a team library folder (repeatable; after PINLIB_LIBRARY)")
-    parser = subparsers.add_parser("parts", help=HELP, description=HELP.capitalize() + ".",
+    parser = subparsers.add_parser("parts", help=HELP,
+                                   description=HELP[:1].upper() + HELP[1:] + ".",
                                    epilog=EPILOG,
                                    formatter_class=HelpLayout)
     sub = parser.add_subparsers(dest="parts_command", metavar="ACTION")
