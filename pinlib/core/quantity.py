@@ -257,11 +257,16 @@ def _bare_hint(x: float, unit: str, field: str | None = None) -> str:
     """How to write a bare number with its unit.  A bare number between 0 and 1 for a
     percentage is most likely a fraction (0.05 for 5 %): both readings are offered, the
     fraction's first."""
-    hint = f"write it as a string with its unit, e.g. {_with_unit(str(x), x, unit, field)}"
     if unit == "%" and 0 < x < 1:
-        hint = (f"write it as a string with its unit: \"{x * 100:.10g} %\" if {x} is a "
-                f"fraction, or \"{x} %\" if you meant {x} percent")
-    return hint
+        return f"write it as a string with its unit: {_fraction_readings(str(x), x)}"
+    return f"write it as a string with its unit, e.g. {_with_unit(str(x), x, unit, field)}"
+
+
+def _fraction_readings(number: str, x: float) -> str:
+    """Both readings of a number between 0 and 1 written for a percentage, the
+    fraction's first."""
+    return f"\"{x * 100:.10g} %\" if {number} is a fraction, or \"{number} %\" if you " \
+           f"meant {number} percent"
 
 
 def _parse_text(text: str, unit: str, field: str | None) -> float:
@@ -297,7 +302,9 @@ def _parse_text(text: str, unit: str, field: str | None) -> float:
     number, rest = float(m.group(1)), m.group(2)
     if not rest:
         raise _fail(text, unit, field, M.BARE_NUMBER,
-                    hint=f"add the unit, e.g. {_with_unit(m.group(1), number, unit, field)}")
+                    hint=f"add the unit: {_fraction_readings(m.group(1), number)}"
+                    if unit == "%" and 0 < number < 1 else
+                    f"add the unit, e.g. {_with_unit(m.group(1), number, unit, field)}")
     written = rest.strip()
     rest = rest.replace("·", "").replace(" ", "")
     got = _split_unit(rest)
