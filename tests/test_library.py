@@ -148,6 +148,13 @@ def test_not_a_part_file(builtin, tmp_path):
     write(team, "x.toml", 'format = "pinlib.design/1"\nid = "x"\n')
     (err,) = load_library([team]).problems
     assert err.field == "format" and err.line == 1
+    # a design kept beside the team's parts (library = ["."]) is said to be one, and
+    # where it belongs; every check of it warned "not a part-class file" alone
+    assert err.hint == ("a design file: a library folder holds part files only; keep "
+                        "designs in another folder")
+    write(team, "x.toml", 'format = "pinlib.part/9"\nid = "x"\n')
+    (err,) = load_library([team]).problems
+    assert err.hint is None
 
 
 def test_inherited_bad_value_points_at_the_parent_file(builtin, tmp_path):

@@ -337,6 +337,12 @@ def _(env):
     return _fails(lambda e: e.part('format = "pinlib.part/9"\nid = "p"\n'), env)
 
 
+@case("DESIGN_IN_LIBRARY")
+def _(env):
+    return _fails(lambda e: e.part('format = "pinlib.design/1"\ntitle = "a board"\n'),
+                  env).hint
+
+
 @case("PART_NEEDS_ID")
 def _(env):
     return _fails(lambda e: e.part('format = "pinlib.part/1"\ntitle = "no id"\n'), env)

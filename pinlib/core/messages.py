@@ -79,6 +79,8 @@ QUANTITY_TOO_LONG = "{n} characters: too long for a quantity (at most {limit})"
 # ---------------------------------------------------------------- pinlib/library/
 # loader.py
 NOT_A_PART_FILE = "not a part-class file"
+DESIGN_IN_LIBRARY = ("a design file: a library folder holds part files only; keep designs "
+                     "in another folder")
 PART_NEEDS_ID = "a part file needs an id"
 LIBRARY_FOLDER_NOT_FOUND = "library folder not found"
 # folders.py, design/load.py and loader.py: a file (a team part's) named as a library

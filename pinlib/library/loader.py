@@ -97,7 +97,8 @@ def read_part_file(path: Path, *, builtin: bool = False) -> PartFile:
     fmt = raw.get("format")
     if fmt != FORMAT:
         raise LibraryError(M.NOT_A_PART_FILE, file=str(path), line=pf.line(("format",)),
-                           field="format", value=fmt, expected=f'format = "{FORMAT}"')
+                           field="format", value=fmt, expected=f'format = "{FORMAT}"',
+                           hint=M.DESIGN_IN_LIBRARY if fmt == "pinlib.design/1" else None)
     if not isinstance(raw.get("id"), str) or not raw["id"]:
         raise LibraryError(M.PART_NEEDS_ID, file=str(path), line=pf.line(("id",)),
                            field="id", expected="a lowercase id such as \"eeprom-i2c\"")
