@@ -267,6 +267,26 @@ def test_show_inherited_value_table_keeps_its_source(lib, capsys):
     assert values["pins.sda.c_in"]["source"] == "spec, Ci max"
 
 
+@pytest.mark.parametrize("argv", [("parts", "show", "eeprom"),
+                                  ("parts", "record", "eeprom", "sda.c_in", "6 pF",
+                                   "--source", "rev B"),
+                                  ("parts", "new", "x1", "--from", "eeprom", "--into", "team"),
+                                  ("new", "board.toml", "--part", "U1=eeprom",
+                                   "--part", "U2=base")])
+def test_a_part_whose_file_is_not_toml_is_named_at_its_file_and_line(lib, capsys, argv):
+    # a stray line in the team file: "field 'ID': part 'eeprom' does not load: not valid
+    # TOML ...", neither file nor line, and where team folders are read (it was found)
+    _, team = lib
+    (team / "eeprom.toml").write_text(EEPROM + "oops =\n", encoding="utf-8")
+    before = (team / "eeprom.toml").read_bytes()
+    code, _, err = run(capsys, *argv, "--library", "team")
+    err = " ".join(err.split())
+    assert code == 2 and "team/eeprom.toml:11" in err and "does not load" in err, err
+    assert "team folders are read" not in err
+    assert (team / "eeprom.toml").read_bytes() == before
+    assert not (team / "x1.toml").exists()
+
+
 def test_show_unknown_part(lib, capsys):
     code, out, err = run(capsys, "parts", "show", "eeprm", "--library", "team")
     assert code == 2 and "unknown part" in err and "eeprom" in err

@@ -112,7 +112,7 @@ def run(args) -> int:
         try:
             part = lib.get(pid, field="--part")
         except InputError as err:
-            if pid in lib.files:
+            if pid in lib.files or lib.problems_of(pid):
                 raise  # a part that does not load: its own file's error
             from pinlib.library.folders import team_folders_hint
 

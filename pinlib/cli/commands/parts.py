@@ -424,6 +424,8 @@ def _refuse_unknown(lib, pid: str, field: str, args) -> None:
     try:
         lib.get(pid)
     except InputError as err:
+        if lib.problems_of(pid):
+            raise  # a file holds it and cannot be read: that file's line and problem
         from pinlib.library.folders import team_folders_hint
 
         raise InputError(err.problem, field=field, value=pid, hint="; ".join(
