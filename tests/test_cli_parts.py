@@ -272,7 +272,8 @@ def test_show_inherited_value_table_keeps_its_source(lib, capsys):
                                    "--source", "rev B"),
                                   ("parts", "new", "x1", "--from", "eeprom", "--into", "team"),
                                   ("new", "board.toml", "--part", "U1=eeprom",
-                                   "--part", "U2=base")])
+                                   "--part", "U2=base"),
+                                  ("parts", "used-by", "eeprom")])
 def test_a_part_whose_file_is_not_toml_is_named_at_its_file_and_line(lib, capsys, argv):
     # a stray line in the team file: "field 'ID': part 'eeprom' does not load: not valid
     # TOML ...", neither file nor line, and where team folders are read (it was found)
