@@ -288,6 +288,18 @@ def test_misspelt_design_key_names_the_design_fields(tmp_path, body, field, clos
     assert msg.endswith(f"closest: {closest}")
 
 
+def test_an_empty_design_file_is_said_to_be_empty(tmp_path, capsys):
+    # it read "field 'format': not a design file", as if it held another format
+    path = tmp_path / "d.toml"
+    path.write_text("# to write\n", encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    assert info.value.problem == "the file holds nothing (empty, or comments only)"
+    assert info.value.expected == 'format = "pinlib.design/1"'
+    assert main(["check", str(path)]) == 2
+    assert "not a design file" not in capsys.readouterr().err
+
+
 def test_misspelt_title_is_named_before_the_missing_title(tmp_path):
     path = tmp_path / "d.toml"
     path.write_text(HEAD.replace("title =", "titel =") + ONE_BUS.replace("PART", "t-target"),

@@ -157,6 +157,16 @@ def test_not_a_part_file(builtin, tmp_path):
     assert err.hint is None
 
 
+@pytest.mark.parametrize("text", ["", "\n\n", "# a part, to write\n"])
+def test_an_empty_part_file_is_said_to_be_empty(builtin, tmp_path, text):
+    # it read "field 'format': not a part-class file", as if it held another format
+    team = tmp_path / "team"
+    write(team, "x.toml", text)
+    (err,) = load_library([team]).problems
+    assert err.problem == "the file holds nothing (empty, or comments only)"
+    assert err.expected == 'format = "pinlib.part/1"' and err.field is None
+
+
 def test_inherited_bad_value_points_at_the_parent_file(builtin, tmp_path):
     team = tmp_path / "team"
     parent = write(team, "p.toml", part("p", "base", '[pins.scl]\nleakage = "3 V"\n'))

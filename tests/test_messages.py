@@ -1308,6 +1308,11 @@ def _(env):
 
 
 # ---------------------------------------------------------------- design
+@case("FILE_HOLDS_NOTHING")
+def _(env):
+    return _fails(lambda e: e.design("", head="# a board, to write\n"), env)
+
+
 @case("NOT_A_DESIGN")
 def _(env):
     return _fails(lambda e: e.design(I2C_BUS, head=HEAD.replace("design/1", "design/7")), env)

@@ -95,6 +95,8 @@ def read_part_file(path: Path, *, builtin: bool = False) -> PartFile:
     raw, text = load(path, error=LibraryError, max_bytes=MAX_PART_BYTES)
     pf = PartFile(Path(path), raw, text, builtin)
     fmt = raw.get("format")
+    if not raw:
+        raise LibraryError(M.FILE_HOLDS_NOTHING, file=str(path), expected=f'format = "{FORMAT}"')
     if fmt != FORMAT:
         raise LibraryError(M.NOT_A_PART_FILE, file=str(path), line=pf.line(("format",)),
                            field="format", value=fmt, expected=f'format = "{FORMAT}"',

@@ -62,6 +62,8 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
     def at(loc):
         return {"file": fname, "line": line_of(index, loc)}
 
+    if not data:
+        raise DesignError(M.FILE_HOLDS_NOTHING, file=fname, expected=f'format = "{FORMAT}"')
     if data.get("format") != FORMAT:
         raise DesignError(M.NOT_A_DESIGN, field="format", value=data.get("format"),
                           expected=f'format = "{FORMAT}"', **at(("format",)))
