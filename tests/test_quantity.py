@@ -500,6 +500,22 @@ def test_a_rail_written_with_its_unit_for_a_point_is_offered_as_a_value(text, fi
     assert fixed in info.value.hint, info.value.hint
 
 
+@pytest.mark.parametrize("text", ["±5 %", "+/-5%", "± 5 %", "+-5 %"])
+def test_a_tolerance_written_with_its_plus_minus_is_offered_without_it(text):
+    # common practice, no source: datasheets and BOMs write "±5 %"; a tolerance field is
+    # already ± (docs/formats/design.md); it read "not a number with a unit", no hint
+    with pytest.raises(UnitError) as info:
+        parse(text, "%", field="supply_tolerance")
+    assert info.value.hint == 'a tolerance is taken both ways: write "5 %" without the ±'
+
+
+def test_a_prefix_without_its_unit_is_offered_in_the_prefix_s_own_case():
+    # "4.7 K" was told to write "4.7 KΩ"
+    with pytest.raises(UnitError) as info:
+        parse("4.7 K", "Ω", field="pullup")
+    assert '"4.7 kΩ"' in info.value.hint, info.value.hint
+
+
 def test_a_bare_number_is_given_one_example_its_own():
     # '28' for a length: the hint writes the user's number with units, so the expected
     # part no longer adds the generic "(e.g. '14 cm')" beside it

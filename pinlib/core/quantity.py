@@ -298,7 +298,7 @@ def _parse_text(text: str, unit: str, field: str | None) -> float:
         return _scaled(f"{whole or '0'}.{frac or '0'}", scale)
     m = _PLAIN.match(text)
     if not m:
-        raise _fail(text, unit, field, M.NOT_A_QUANTITY)
+        raise _fail(text, unit, field, M.NOT_A_QUANTITY, hint=_plus_minus_hint(text, unit))
     number, rest = float(m.group(1)), m.group(2)
     if not rest:
         raise _fail(text, unit, field, M.BARE_NUMBER,
@@ -337,7 +337,7 @@ def _unit_hint(text: str, number: str, rest: str, unit: str) -> str | None:
         fixed = text.strip().replace(",", ".", 1)
         return f'a decimal comma: write a point, "{fixed}"'
     if rest in _PREFIX:
-        return f'a prefix without its unit: write "{number} {rest}{unit}"'
+        return f'a prefix without its unit: write "{number} {_PREFIX_SHOWN[_PREFIX[rest]]}{unit}"'
     if unit == "V" and re.fullmatch(r"V\d+", rest) and re.fullmatch(r"\d+", number):
         # a rail's schematic name, 3V3: the unit where the decimal point goes
         return f'the unit for the decimal point: write "{number}.{rest[1:]} V"'
@@ -353,6 +353,23 @@ def _unit_hint(text: str, number: str, rest: str, unit: str) -> str | None:
         return None
     case = " (the case of a prefix matters: M is mega, m milli)" if len(shown) > 1 else ""
     return "write " + " or ".join(f'"{s}"' for s in shown) + case
+
+
+_PLUS_MINUS = re.compile(r"^\s*(?:±|\+/-|\+-)\s*")
+
+
+def _plus_minus_hint(text: str, unit: str) -> str | None:
+    """A percentage written with its ± ("±5 %", "+/-5%"), as datasheets write a
+    tolerance: the value to write, since a tolerance field is taken both ways."""
+    m = _PLUS_MINUS.match(text)
+    if unit != "%" or not m:
+        return None
+    rest = text[m.end():].strip()
+    if not _PLAIN.match(rest):
+        return None
+    number, after = _PLAIN.match(rest).groups()
+    return (f'a tolerance is taken both ways: write "{number} {after.strip() or "%"}" '
+            "without the ±")
 
 
 def _scaled(number: str, scale: float) -> float:
