@@ -509,6 +509,21 @@ def test_a_tolerance_written_with_its_plus_minus_is_offered_without_it(text):
     assert info.value.hint == 'a tolerance is taken both ways: write "5 %" without the ±'
 
 
+@pytest.mark.parametrize("text, field, hint", [
+    ("4.7 kΩ ±1%", "bus[0].pullup",
+     'a tolerance beside the value: write "4.7 kΩ", and the tolerance as pullup_tolerance'),
+    ("3.3 V +/- 5 %", "bus[0].supply",
+     'a tolerance beside the value: write "3.3 V", and the tolerance as supply_tolerance'),
+    ("8 pF ±10%", "pins.sda.c_in",
+     'a tolerance beside the value: write "8 pF", the limit in the direction that hurts'),
+])
+def test_a_value_with_its_tolerance_beside_it_is_told_where_each_goes(text, field, hint):
+    # a BOM line's "4.7 kΩ ±1%" read "unknown unit 'kΩ ±1%'" with no hint
+    with pytest.raises(UnitError) as info:
+        parse(text, {"F": "F"}.get(text.split()[1][-1], text.split()[1][-1]), field=field)
+    assert info.value.hint == hint
+
+
 def test_a_prefix_without_its_unit_is_offered_in_the_prefix_s_own_case():
     # "4.7 K" was told to write "4.7 KΩ"
     with pytest.raises(UnitError) as info:

@@ -310,7 +310,7 @@ def _parse_text(text: str, unit: str, field: str | None) -> float:
     got = _split_unit(rest)
     if got is None:  # the unit as written ('pF pF', not 'pFpF')
         raise _fail(text, unit, field, M.UNKNOWN_UNIT.format(unit=written),
-                    hint=_unit_hint(text, m.group(1), rest, unit))
+                    hint=_unit_hint(text, m.group(1), rest, unit, field))
     scale, base = got
     if base != unit:
         raise _fail(text, unit, field, M.WRONG_DIMENSION.format(unit=base, quantity=UNITS[unit][0]))
@@ -326,13 +326,37 @@ _PREFIX_SHOWN = {1e12: "T", 1e9: "G", 1e6: "M", 1e3: "k", 1.0: "", 1e-3: "m", 1e
 _DECIMAL_COMMA = re.compile(r"^\s*[+-]?\d+,(?!\d{3}(?!\d))\d+(?![\d,])")
 
 
-def _unit_hint(text: str, number: str, rest: str, unit: str) -> str | None:
+#: Fields of a design whose tolerance has a field of its own beside them.
+_TOLERANCE_FIELDS = ("pullup", "supply")
+
+
+def _tolerance_hint(number: str, rest: str, unit: str, field: str | None) -> str | None:
+    """A value with its tolerance beside it, as a BOM writes it ("4.7 kΩ ±1%"): the value
+    to write, and where the tolerance goes (a design's ``pullup_tolerance``,
+    ``supply_tolerance``; a part states its limit, not a tolerance)."""
+    value = re.split(r"±|\+/-|\+-", rest, maxsplit=1)
+    if len(value) < 2:
+        return None
+    got = _split_unit(value[0])
+    if got is None or got[1] != unit:
+        return None
+    leaf = (field or "").rsplit(".", 1)[-1]
+    where = (f"and the tolerance as {leaf}_tolerance" if leaf in _TOLERANCE_FIELDS
+             else "the limit in the direction that hurts")
+    return f'a tolerance beside the value: write "{number} {value[0]}", {where}'
+
+
+def _unit_hint(text: str, number: str, rest: str, unit: str,
+               field: str | None = None) -> str | None:
     """What an unknown unit most likely meant, as the value to write: a decimal comma
     (``"10,5 pF"``), a prefix without its unit (``"10 p"``, ``"4.7 k"``), or a unit in the
     wrong case (``"10 pf"``; both readings where the case decides, ``"MHz" or "mHz"``).
     None when nothing is likely."""
     if unit not in ("Ω", "F", "H", "s", "V", "A", "Hz", "W"):
         return None
+    tolerance = _tolerance_hint(number, rest, unit, field)
+    if tolerance:
+        return tolerance
     if _DECIMAL_COMMA.match(text):
         fixed = text.strip().replace(",", ".", 1)
         return f'a decimal comma: write a point, "{fixed}"'
