@@ -178,6 +178,11 @@ def test_an_unknown_unit_says_what_was_likely_meant(text, unit, hint):
     ("VCC - 0,4 V", 'write "VDD - 0.4 V"'),
     ("0.7", 'write "0.7 VDD" (relative to the supply) or "0.7 V"'),
     ("70%", 'write "70 % VDD"'),
+    # the same mistakes that had no hint: VCC against the number ("0.3VCC"), an offset
+    # without its unit, and a multiple written with "x"
+    ("0.3VCC", 'write "0.3VDD" (the part\'s own supply is written VDD'),
+    ("VDD - 0.4", 'write "VDD - 0.4 V" (the offset with its unit)'),
+    ("0.7 x VDD", 'write "0.7 VDD" (a multiple of VDD is written 0.7 VDD)'),
 ])
 def test_a_refused_level_says_what_was_likely_meant(text, hint):
     with pytest.raises(UnitError) as info:

@@ -515,7 +515,9 @@ def parse_threshold(text: object, *, field: str | None = None) -> Threshold:
 
 
 _PERCENT_ALONE = re.compile(rf"^({_NUMBER})\s*%$")
-_VCC = re.compile(r"\bV(?:CC|DDIO|IO)\b", re.IGNORECASE)
+_VCC = re.compile(r"(?<![A-Za-z])V(?:CC|DDIO|IO)\b", re.IGNORECASE)  # "0.3VCC" too
+_TIMES_VDD = re.compile(r"(\d)\s*[x×]\s*(VDD)\b")
+_OFFSET_NO_UNIT = re.compile(rf"^VDD\s*[-+]\s*{_NUMBER}$")
 
 
 def _threshold_hint(body: str) -> str | None:
@@ -536,6 +538,12 @@ def _threshold_hint(body: str) -> str | None:
     if _VCC.search(fixed):
         fixed = _VCC.sub("VDD", fixed)
         why.append("the part's own supply is written VDD, a datasheet's VCC too")
+    if _TIMES_VDD.search(fixed):
+        fixed = _TIMES_VDD.sub(r"\1 \2", fixed)
+        why.append("a multiple of VDD is written 0.7 VDD")
+    if _OFFSET_NO_UNIT.match(fixed.strip()):
+        fixed = fixed.strip() + " V"
+        why.append("the offset with its unit")
     if why and reads(fixed):
         return f'write "{fixed}" ({"; ".join(why)})'
     if re.fullmatch(_NUMBER, body):
