@@ -613,9 +613,28 @@ def test_check_lists_a_problem_two_parts_inherit_once(lib, capsys, where):
     assert len(problems) == 1
 
 
+def test_check_of_one_part_file_lists_that_file_s_problems(lib, capsys, tmp_path):
+    # "pinlib parts check team/eeprom.toml" (the file a person just recorded into) said
+    # "field 'FOLDER': not a folder"; it checks that file against its folder's library
+    _, team = lib
+    (team / "eeprom.toml").write_text(EEPROM.replace('"8 pF"', '"8 pH"'), encoding="utf-8")
+    (team / "other.toml").write_text(EEPROM.replace('id = "eeprom"', 'id = "other"')
+                                     .replace('"8 pF"', '"9 pH"'), encoding="utf-8")
+    code, out, err = run(capsys, "parts", "check", "team/eeprom.toml")
+    lines = out.splitlines()
+    assert code == 1 and not err, err
+    assert lines[0].startswith("team/eeprom.toml:10, field 'pins.sda.c_in'")
+    assert "other.toml" not in out
+    assert lines[-1] == "checked 1 file, team/eeprom.toml: 1 problem"
+    (team / "other.toml").unlink()
+    (team / "eeprom.toml").write_text(EEPROM, encoding="utf-8")
+    code, out, _ = run(capsys, "parts", "check", "team/eeprom.toml", "--json")
+    assert code == 0 and json.loads(out)["files"] == 1
+
+
 def test_check_missing_folder(lib, capsys):
     code, _, err = run(capsys, "parts", "check", "nowhere")
-    assert code == 2 and "not a folder" in err
+    assert code == 2 and "nowhere, field 'FOLDER': library folder not found" in err, err
 
 
 def test_new_into_a_file_says_to_name_its_folder(lib, capsys):

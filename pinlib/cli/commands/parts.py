@@ -91,6 +91,7 @@ the file is left as it was. Built-in parts are never written: make a team part f
 examples:
   pinlib parts check         # the whole merged library
   pinlib parts check parts   # every file of one folder, against the library
+  pinlib parts check parts/eeprom-acme.toml   # one part file of that folder
 
 Exit code 0 when every file is valid, 1 when any problem is found.
 """,
@@ -163,7 +164,8 @@ def add_parser(subparsers) -> None:
 
     p = action("check", "check part files and report every problem", _run_check)
     p.add_argument("folder", metavar="FOLDER", nargs="?",
-                   help="check the files of this folder (default: the whole library)")
+                   help="check the files of this folder, or one part file (default: the "
+                        "whole library)")
     p.add_argument("--json", action="store_true", help="print the problems as JSON")
 
     p = action("schema", "print the JSON Schema of part files", _run_schema)
