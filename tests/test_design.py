@@ -288,6 +288,18 @@ def test_misspelt_design_key_names_the_design_fields(tmp_path, body, field, clos
     assert msg.endswith(f"closest: {closest}")
 
 
+def test_a_missing_field_of_a_few_choices_names_them(tmp_path):
+    # "field 'bus[0].protocol': a required field is missing", and nothing said what
+    # to write there
+    path = write(tmp_path, ONE_BUS.replace("PART", "t-target").replace(
+        'protocol = "i2c"\n', ""))
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    assert info.value.problem == "a required field is missing"
+    assert info.value.field == "bus[0].protocol"
+    assert info.value.expected == "'i2c', 'smbus', 'spi' or 'gpio'"
+
+
 def test_an_empty_design_file_is_said_to_be_empty(tmp_path, capsys):
     # it read "field 'format': not a design file", as if it held another format
     path = tmp_path / "d.toml"
