@@ -575,3 +575,15 @@ def test_cable_is_no_category_a_position_ranks(capsys, monkeypatch):
     with pytest.raises(InputError, match="a cable is no candidate") as got:
         cand.rank_candidates(DEMO_DESIGN, "U4", categories=["cable"])
     assert "cable" not in got.value.expected and "memory" in got.value.expected
+
+
+def test_a_misspelt_category_is_refused_as_parts_list_refuses_it(capsys):
+    # "invalid choice: 'memroy' (choose from 'controller', 'sensor', ...)": argparse's
+    # wording, where 'pinlib parts list --category memroy' names the closest
+    with pytest.raises(SystemExit) as exc:
+        main(["candidates", str(DEMO), "U4", "--category", "memroy"])
+    assert exc.value.code == 2
+    err = " ".join(capsys.readouterr().err.split())
+    assert "argument --category: not one of the allowed values (got 'memroy'); expected " \
+           "one of controller, sensor, memory" in err, err
+    assert err.endswith("closest: memory") and "invalid choice" not in err

@@ -127,3 +127,18 @@ def test_no_help_page_names_the_checkout_s_demo_path():
             if ln.startswith("  pinlib ")
             and re.search(r"(?<!pinlib-demo/)workbooks/designs/", ln)}
     assert not bare, sorted(bare)
+
+
+def test_a_help_page_s_description_keeps_the_case_of_its_summary():
+    # 'pinlib parts --help' read "... import from ibis and check library parts": its
+    # summary capitalized with str.capitalize, which lowers every other letter
+    from pinlib.cli import SUMMARIES
+
+    told = []
+    for words, parser in _pages(build_parser()):
+        summary = SUMMARIES.get(words[-1]) if len(words) == 2 else None
+        first = " ".join((parser.description or "").split())
+        if summary and first.lower().startswith(summary.lower()):  # the summary, as told
+            told.append(words)
+            assert first.startswith(summary[:1].upper() + summary[1:]), (words, first)
+    assert ("pinlib", "parts") in told

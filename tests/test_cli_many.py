@@ -60,6 +60,28 @@ def test_a_new_design_fits_80_columns_with_its_notes_in_one_column(tmp_path, cap
     assert load_design(path).buses  # and it still loads
 
 
+def test_new_without_a_controller_says_who_stands_in_and_picks_a_common_rail(tmp_path, capsys):
+    # invented scenario: an RTC and an EEPROM, the microcontroller forgotten.  The RTC
+    # was made the controller without a word, on a rail of 3.55 V (the middle of its
+    # 1.6 V to 5.5 V range), a rail no board has
+    path = tmp_path / "board.toml"
+    assert main(["new", str(path), "--part", "U2=rtc-i2c", "--part", "U3=eeprom-i2c"]) == 0
+    err = " ".join(capsys.readouterr().err.split())
+    assert "note: no part given drives SCL: U2 stands in as the controller" in err, err
+    text = path.read_text(encoding="utf-8")
+    assert "U2 stands in as the controller" in text
+    assert all(len(line) <= 80 for line in text.splitlines())
+    (bus,) = load_design(path).buses
+    # common practice, no source: 3.3 V, the first of the common rails within both ranges
+    assert float(bus.supply) == pytest.approx(3.3, rel=1e-12)
+    assert 'supply = "3.55 V"' not in text
+    # with the controller placed, no note
+    path2 = tmp_path / "two.toml"
+    assert main(["new", str(path2), "--part", "U1=mcu-3v3", "--part", "U3=eeprom-i2c"]) == 0
+    assert "note:" not in capsys.readouterr().err
+    assert "stands in" not in path2.read_text(encoding="utf-8")
+
+
 def test_new_given_a_folder_says_it_is_one(tmp_path, capsys):
     # "pinlib new boards/" said "the file exists", as if a design were there
     assert main(["new", str(tmp_path), "--part", "U1=mcu-3v3", "--part", "U2=eeprom-i2c"]) == 2

@@ -196,6 +196,26 @@ def test_show_values_with_provenance_and_origin(lib, capsys):
     assert "3.6 V" in rows["supply.max"] and "1.7 V" in rows["supply.min"]
 
 
+def test_show_provenance_is_the_team_part_s_own(lib, capsys):
+    # a team part written by 'parts new' without --source: its provenance line read
+    # "datasheet, common practice", the class's source beside the team part's basis
+    # (a class whose provenance has a date: without one, it was replaced whole)
+    _, team = lib
+    (team / "cls.toml").write_text(BASE.replace('id = "base"', 'id = "cls"').replace(
+        'source = "common practice" }', 'source = "common practice", recorded = 2026-12-01 }'),
+        encoding="utf-8")
+    code, _, _ = run(capsys, "parts", "new", "x1", "--from", "cls", "--into", "team",
+                       "--library", "team")
+    assert code == 0
+    code, out, _ = run(capsys, "parts", "show", "x1", "--library", "team")
+    assert code == 0
+    (line,) = [ln for ln in out.splitlines() if "provenance:" in ln]
+    assert line.split("provenance: ")[1].startswith("datasheet, recorded "), out
+    assert "common practice" not in line
+    code, out, _ = run(capsys, "parts", "show", "x1", "--library", "team", "--json")
+    assert json.loads(out)["provenance"]["source"] == ""
+
+
 def test_show_head_fits_80_columns(lib, capsys, monkeypatch, tmp_path):
     # a team part overriding a built-in one whose file lies deep: the line naming the
     # overridden file ran to 99 columns and more, unwrapped
@@ -245,6 +265,27 @@ def test_show_inherited_value_table_keeps_its_source(lib, capsys):
     code, out, _ = run(capsys, "parts", "show", "base", "--json")
     values = {v["field"]: v for v in json.loads(out)["values"]}
     assert values["pins.sda.c_in"]["source"] == "spec, Ci max"
+
+
+@pytest.mark.parametrize("argv", [("parts", "show", "eeprom"),
+                                  ("parts", "record", "eeprom", "sda.c_in", "6 pF",
+                                   "--source", "rev B"),
+                                  ("parts", "new", "x1", "--from", "eeprom", "--into", "team"),
+                                  ("new", "board.toml", "--part", "U1=eeprom",
+                                   "--part", "U2=base"),
+                                  ("parts", "used-by", "eeprom")])
+def test_a_part_whose_file_is_not_toml_is_named_at_its_file_and_line(lib, capsys, argv):
+    # a stray line in the team file: "field 'ID': part 'eeprom' does not load: not valid
+    # TOML ...", neither file nor line, and where team folders are read (it was found)
+    _, team = lib
+    (team / "eeprom.toml").write_text(EEPROM + "oops =\n", encoding="utf-8")
+    before = (team / "eeprom.toml").read_bytes()
+    code, _, err = run(capsys, *argv, "--library", "team")
+    err = " ".join(err.split())
+    assert code == 2 and "team/eeprom.toml:11" in err and "does not load" in err, err
+    assert "team folders are read" not in err
+    assert (team / "eeprom.toml").read_bytes() == before
+    assert not (team / "x1.toml").exists()
 
 
 def test_show_unknown_part(lib, capsys):
@@ -440,6 +481,20 @@ def test_record_names_the_typ_field_it_refuses(lib, capsys, typ, problem):
     assert (lib[1] / "eeprom.toml").read_bytes() == before
 
 
+@pytest.mark.parametrize("field, expected", [("c_in", "PIN.c_in"),
+                                             ("sides.a.v_il", "sides.a.PIN.v_il")])
+def test_record_of_a_pin_field_without_its_pin_says_so(lib, capsys, field, expected):
+    # "c_in" was read as a pin named c_in: "field 'pins.c_in': the path stops before a
+    # field", when the field is there and its pin is what is missing
+    before = (lib[1] / "eeprom.toml").read_bytes()
+    code, _, err = run(capsys, "parts", "record", "eeprom", field, "5 pF",
+                       "--source", "rev B", "--library", "team")
+    err = " ".join(err.split())
+    assert code == 2 and f"field '{field}': a pin's field without its pin" in err, err
+    assert f"(got '{field}'); expected {expected}" in err and "stops before" not in err
+    assert (lib[1] / "eeprom.toml").read_bytes() == before
+
+
 def test_record_holds_a_typical_level_to_the_limit_s_range(lib, capsys):
     # "9 VDD" is refused as a level; as its typical value it was stored
     before = (lib[1] / "eeprom.toml").read_bytes()
@@ -558,9 +613,28 @@ def test_check_lists_a_problem_two_parts_inherit_once(lib, capsys, where):
     assert len(problems) == 1
 
 
+def test_check_of_one_part_file_lists_that_file_s_problems(lib, capsys, tmp_path):
+    # "pinlib parts check team/eeprom.toml" (the file a person just recorded into) said
+    # "field 'FOLDER': not a folder"; it checks that file against its folder's library
+    _, team = lib
+    (team / "eeprom.toml").write_text(EEPROM.replace('"8 pF"', '"8 pH"'), encoding="utf-8")
+    (team / "other.toml").write_text(EEPROM.replace('id = "eeprom"', 'id = "other"')
+                                     .replace('"8 pF"', '"9 pH"'), encoding="utf-8")
+    code, out, err = run(capsys, "parts", "check", "team/eeprom.toml")
+    lines = out.splitlines()
+    assert code == 1 and not err, err
+    assert lines[0].startswith("team/eeprom.toml:10, field 'pins.sda.c_in'")
+    assert "other.toml" not in out
+    assert lines[-1] == "checked 1 file, team/eeprom.toml: 1 problem"
+    (team / "other.toml").unlink()
+    (team / "eeprom.toml").write_text(EEPROM, encoding="utf-8")
+    code, out, _ = run(capsys, "parts", "check", "team/eeprom.toml", "--json")
+    assert code == 0 and json.loads(out)["files"] == 1
+
+
 def test_check_missing_folder(lib, capsys):
     code, _, err = run(capsys, "parts", "check", "nowhere")
-    assert code == 2 and "not a folder" in err
+    assert code == 2 and "nowhere, field 'FOLDER': library folder not found" in err, err
 
 
 def test_new_into_a_file_says_to_name_its_folder(lib, capsys):

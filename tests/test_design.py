@@ -288,12 +288,66 @@ def test_misspelt_design_key_names_the_design_fields(tmp_path, body, field, clos
     assert msg.endswith(f"closest: {closest}")
 
 
+def test_a_missing_field_of_a_few_choices_names_them(tmp_path):
+    # "field 'bus[0].protocol': a required field is missing", and nothing said what
+    # to write there
+    path = write(tmp_path, ONE_BUS.replace("PART", "t-target").replace(
+        'protocol = "i2c"\n', ""))
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    assert info.value.problem == "a required field is missing"
+    assert info.value.field == "bus[0].protocol"
+    assert info.value.expected == "'i2c', 'smbus', 'spi' or 'gpio'"
+
+
+def test_an_empty_design_file_is_said_to_be_empty(tmp_path, capsys):
+    # it read "field 'format': not a design file", as if it held another format
+    path = tmp_path / "d.toml"
+    path.write_text("# to write\n", encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    assert info.value.problem == "the file holds nothing (empty, or comments only)"
+    assert info.value.expected == 'format = "pinlib.design/1"'
+    assert main(["check", str(path)]) == 2
+    assert "not a design file" not in capsys.readouterr().err
+
+
 def test_misspelt_title_is_named_before_the_missing_title(tmp_path):
     path = tmp_path / "d.toml"
     path.write_text(HEAD.replace("title =", "titel =") + ONE_BUS.replace("PART", "t-target"),
                     encoding="utf-8")
     with pytest.raises(DesignError, match="unknown field.*closest: title"):
         load_design(path)
+
+
+def test_a_part_file_named_as_a_library_folder_is_told_to_name_its_folder(
+        tmp_path, monkeypatch, capsys):
+    # a person names the team part's file where its folder belongs: it read "library
+    # folder not found" (the file is there) or "does not exist" for the design's line
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    team = tmp_path / "team"
+    team.mkdir()
+    part_file = team / "x.toml"
+    part_file.write_text("", encoding="utf-8")
+    good = write(tmp_path, ONE_BUS.replace("PART", "t-target"))
+    assert main(["check", str(good), "--library", str(part_file)]) == 2
+    err = " ".join(capsys.readouterr().err.split())
+    assert "field '--library': a file where a library folder belongs" in err, err
+    assert f"name the folder that holds the part files: {team}" in err
+    assert "not found" not in err
+    monkeypatch.setenv("PINLIB_LIBRARY", str(part_file))
+    assert main(["parts", "list"]) == 2
+    err = " ".join(capsys.readouterr().err.split())
+    assert "field 'PINLIB_LIBRARY': a file where a library folder belongs" in err, err
+    monkeypatch.delenv("PINLIB_LIBRARY")
+    own = tmp_path / "own.toml"
+    own.write_text(HEAD.replace("library = [", 'library = ["team/x.toml", ')
+                   + ONE_BUS.replace("PART", "t-target"), encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(own)
+    assert info.value.problem == "a file where a library folder belongs"
+    assert info.value.field == "library[0]" and info.value.line == 3
+    assert info.value.hint == "name the folder that holds the part files: team"
 
 
 def test_missing_library_folder_blames_its_source(tmp_path, monkeypatch, capsys):

@@ -148,6 +148,23 @@ def test_not_a_part_file(builtin, tmp_path):
     write(team, "x.toml", 'format = "pinlib.design/1"\nid = "x"\n')
     (err,) = load_library([team]).problems
     assert err.field == "format" and err.line == 1
+    # a design kept beside the team's parts (library = ["."]) is said to be one, and
+    # where it belongs; every check of it warned "not a part-class file" alone
+    assert err.hint == ("a design file: a library folder holds part files only; keep "
+                        "designs in another folder")
+    write(team, "x.toml", 'format = "pinlib.part/9"\nid = "x"\n')
+    (err,) = load_library([team]).problems
+    assert err.hint is None
+
+
+@pytest.mark.parametrize("text", ["", "\n\n", "# a part, to write\n"])
+def test_an_empty_part_file_is_said_to_be_empty(builtin, tmp_path, text):
+    # it read "field 'format': not a part-class file", as if it held another format
+    team = tmp_path / "team"
+    write(team, "x.toml", text)
+    (err,) = load_library([team]).problems
+    assert err.problem == "the file holds nothing (empty, or comments only)"
+    assert err.expected == 'format = "pinlib.part/1"' and err.field is None
 
 
 def test_inherited_bad_value_points_at_the_parent_file(builtin, tmp_path):
@@ -332,6 +349,31 @@ def test_three_level_chain_and_origins(builtin, tmp_path):
     # id, extends and abstract are not inherited
     assert not p.abstract and lib.parts["base"].abstract
     assert lib.path_of("mid") == mid and lib.path_of("leaf") == leaf
+
+
+def test_a_part_s_provenance_is_its_own_file_s_whole(builtin, tmp_path):
+    # invented: a team part states its basis (datasheet) and no source yet, as
+    # 'pinlib parts new' writes it.  Its provenance merged key by key with the class's
+    # and read "datasheet, common practice": the class's source claimed for the team
+    # part's datasheet, and cited for every value the team part states without one
+    team = tmp_path / "team"
+    write(team, "cls.toml", part("cls", "base", """
+        provenance = { basis = "generic", source = "common practice", recorded = 2026-12-01 }
+        """))
+    write(team, "x.toml", part("x", "cls", """
+        provenance = { basis = "datasheet", recorded = 2026-12-05 }
+
+        [timing]
+        f_max = "1 MHz"
+        """))
+    p = load_library([team]).parts["x"]
+    assert (p.provenance.basis, p.provenance.source) == ("datasheet", "")
+    assert (p.timing.f_max.basis, p.timing.f_max.source) == ("datasheet", None)
+    assert p.provenance.recorded.isoformat() == "2026-12-05"
+    # a part that states no provenance at all still takes its class's
+    write(team, "x.toml", part("x", "cls"))
+    p = load_library([team]).parts["x"]
+    assert (p.provenance.basis, p.provenance.source) == ("generic", "common practice")
 
 
 def test_a_value_table_replaces_the_parents_whole(builtin, tmp_path):

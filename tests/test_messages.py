@@ -337,6 +337,12 @@ def _(env):
     return _fails(lambda e: e.part('format = "pinlib.part/9"\nid = "p"\n'), env)
 
 
+@case("DESIGN_IN_LIBRARY")
+def _(env):
+    return _fails(lambda e: e.part('format = "pinlib.design/1"\ntitle = "a board"\n'),
+                  env).hint
+
+
 @case("PART_NEEDS_ID")
 def _(env):
     return _fails(lambda e: e.part('format = "pinlib.part/1"\ntitle = "no id"\n'), env)
@@ -540,6 +546,20 @@ def _(env):
 def _(env):
     env.monkeypatch.setenv("PINLIB_LIBRARY", str(env.tmp / "gone"))
     return env.cli("parts", "list")
+
+
+@case("LIBRARY_IS_A_FILE")
+def _(env):  # a team part's file where its folder belongs, as the loader meets it
+    lib = load_library([env.write("team/p.toml", PART.format(id="p"))], env=False)
+    (err,) = lib.problems
+    return err
+
+
+@case("LIBRARY_FILE_HINT", lambda: M.LIBRARY_FILE_HINT.format(folder="team"))
+def _(env):
+    env.write("team/p.toml", PART.format(id="p"))
+    env.monkeypatch.chdir(env.tmp)
+    return env.cli("parts", "list", "--library", "team/p.toml")
 
 
 # 13.15 and 13.19: cable classes and implausible values (pinlib.library.plausible)
@@ -1111,6 +1131,11 @@ def _(env):
     return _fails(lambda e: resolve_path("sides.a"), env)
 
 
+@case("FIELD_WITHOUT_PIN")
+def _(env):
+    return _fails(lambda e: resolve_path("c_in"), env)
+
+
 # ---------------------------------------------------------------- library: recording
 @case("BUILTIN_NOT_WRITTEN")
 def _(env):
@@ -1283,6 +1308,11 @@ def _(env):
 
 
 # ---------------------------------------------------------------- design
+@case("FILE_HOLDS_NOTHING")
+def _(env):
+    return _fails(lambda e: e.design("", head="# a board, to write\n"), env)
+
+
 @case("NOT_A_DESIGN")
 def _(env):
     return _fails(lambda e: e.design(I2C_BUS, head=HEAD.replace("design/1", "design/7")), env)

@@ -178,6 +178,11 @@ def test_an_unknown_unit_says_what_was_likely_meant(text, unit, hint):
     ("VCC - 0,4 V", 'write "VDD - 0.4 V"'),
     ("0.7", 'write "0.7 VDD" (relative to the supply) or "0.7 V"'),
     ("70%", 'write "70 % VDD"'),
+    # the same mistakes that had no hint: VCC against the number ("0.3VCC"), an offset
+    # without its unit, and a multiple written with "x"
+    ("0.3VCC", 'write "0.3VDD" (the part\'s own supply is written VDD'),
+    ("VDD - 0.4", 'write "VDD - 0.4 V" (the offset with its unit)'),
+    ("0.7 x VDD", 'write "0.7 VDD" (a multiple of VDD is written 0.7 VDD)'),
 ])
 def test_a_refused_level_says_what_was_likely_meant(text, hint):
     with pytest.raises(UnitError) as info:
@@ -193,7 +198,8 @@ def test_a_thousands_comma_is_not_read_as_a_decimal_one():
 
 
 @pytest.mark.parametrize(("value", "unit", "suggested"), [
-    ("8", "F", '"8 pF"'), (8, "F", '"8 pF"'), (3.3, "V", '"3.3 V"'), ("4700", "Ω", '"4700 kΩ"'),
+    # 4700 for a resistance is 4700 Ω written without its unit (it offered "4700 kΩ")
+    ("8", "F", '"8 pF"'), (8, "F", '"8 pF"'), (3.3, "V", '"3.3 V"'), ("4700", "Ω", '"4.7 kΩ"'),
 ])
 def test_bare_number_suggests_the_unit(value, unit, suggested):
     with pytest.raises(UnitError, match="bare number") as info:
@@ -204,11 +210,13 @@ def test_bare_number_suggests_the_unit(value, unit, suggested):
 @pytest.mark.parametrize(("value", "first", "other"), [
     (0.05, '"5 %"', '"0.05 %"'), (0.2, '"20 %"', '"0.2 %"'), (0.001, '"0.1 %"', '"0.001 %"'),
 ])
-def test_bare_fraction_for_a_percentage_suggests_it_times_100(value, first, other):
+@pytest.mark.parametrize("written", [float, str])
+def test_bare_fraction_for_a_percentage_suggests_it_times_100(value, first, other, written):
     # common practice, no source: a tolerance written 0.05 means 5 % far more often
-    # than 0.05 %; both readings offered, the fraction's first
+    # than 0.05 %; both readings offered, the fraction's first.  Written as text ("0.05",
+    # as a command line's --threshold gets it) only "0.05 %" was offered
     with pytest.raises(UnitError, match="bare number") as info:
-        parse(value, "%", field="supply_tolerance")
+        parse(written(value), "%", field="supply_tolerance")
     hint = info.value.hint
     assert first in hint and other in hint and hint.index(first) < hint.index(other)
 
@@ -458,6 +466,74 @@ def test_a_bare_number_is_offered_its_likely_units(x, unit, field, units):
     with pytest.raises(UnitError) as info:
         parse(str(x), unit, field=field)
     assert f'"{x} {units[0]}"' in info.value.hint
+
+
+@pytest.mark.parametrize("x, unit, field, offered, not_offered", [
+    # common practice, no source: a number that, read in a prefixed unit, is far beyond
+    # any board value was written in the SI unit itself (as Python and spreadsheets
+    # write it).  The hint offered "4700 kΩ", "400000 MHz", "2.5e-09 ns".
+    (4700, "Ω", "pullup", ['"4.7 kΩ"'], ['"4700 kΩ"', '"4700 Ω"']),
+    (400000, "Hz", "clock", ['"400 kHz"'], ["MHz", "400000"]),
+    (25e6, "Hz", "clock", ['"25 MHz"'], ["25000000"]),
+    (1000, "Hz", "clock", ['"1000 kHz"', '"1 kHz"'], ["1000 MHz"]),
+    (1e-11, "F", "extra_capacitance", ['"10 pF"'], ["e-11"]),
+    (2.5e-9, "s", "t_setup", ['"2.5 ns"'], ["e-09"]),
+    (1e-10, "F/m", "capacitance", ['"1 pF/cm"'], ["e-10"]),
+    (0.0002, "m", "width", ['"200 µm"'], ["0.0002 mm"]),
+    (0.003, "A", "i_ol", ['"0.003 mA"', '"3 mA"'], []),
+    # where both readings are board values, the likely units stay as they were
+    (33, "Ω", "series_resistor", ['"33 Ω"', '"33 kΩ"'], []),
+    (400, "Hz", "clock", ['"400 kHz"'], []),
+])
+def test_a_bare_number_in_the_si_unit_is_offered_as_such(x, unit, field, offered,
+                                                         not_offered):
+    for written in (x, str(x)):
+        with pytest.raises(UnitError) as info:
+            parse(written, unit, field=field)
+        hint = info.value.hint
+        assert all(o in hint for o in offered), hint
+        assert not any(n in hint for n in not_offered), hint
+
+
+@pytest.mark.parametrize("text, fixed", [("3V3", '"3.3 V"'), ("1V8", '"1.8 V"'),
+                                         ("0V9", '"0.9 V"'), ("5V0", '"5.0 V"')])
+def test_a_rail_written_with_its_unit_for_a_point_is_offered_as_a_value(text, fixed):
+    # common practice, no source: rails are named 3V3, 1V8 on schematics; it read
+    # "unknown unit 'V3'" with no hint
+    with pytest.raises(UnitError) as info:
+        parse(text, "V", field="supply")
+    assert fixed in info.value.hint, info.value.hint
+
+
+@pytest.mark.parametrize("text", ["±5 %", "+/-5%", "± 5 %", "+-5 %"])
+def test_a_tolerance_written_with_its_plus_minus_is_offered_without_it(text):
+    # common practice, no source: datasheets and BOMs write "±5 %"; a tolerance field is
+    # already ± (docs/formats/design.md); it read "not a number with a unit", no hint
+    with pytest.raises(UnitError) as info:
+        parse(text, "%", field="supply_tolerance")
+    assert info.value.hint == 'a tolerance is taken both ways: write "5 %" without the ±'
+
+
+@pytest.mark.parametrize("text, field, hint", [
+    ("4.7 kΩ ±1%", "bus[0].pullup",
+     'a tolerance beside the value: write "4.7 kΩ", and the tolerance as pullup_tolerance'),
+    ("3.3 V +/- 5 %", "bus[0].supply",
+     'a tolerance beside the value: write "3.3 V", and the tolerance as supply_tolerance'),
+    ("8 pF ±10%", "pins.sda.c_in",
+     'a tolerance beside the value: write "8 pF", the limit in the direction that hurts'),
+])
+def test_a_value_with_its_tolerance_beside_it_is_told_where_each_goes(text, field, hint):
+    # a BOM line's "4.7 kΩ ±1%" read "unknown unit 'kΩ ±1%'" with no hint
+    with pytest.raises(UnitError) as info:
+        parse(text, {"F": "F"}.get(text.split()[1][-1], text.split()[1][-1]), field=field)
+    assert info.value.hint == hint
+
+
+def test_a_prefix_without_its_unit_is_offered_in_the_prefix_s_own_case():
+    # "4.7 K" was told to write "4.7 KΩ"
+    with pytest.raises(UnitError) as info:
+        parse("4.7 K", "Ω", field="pullup")
+    assert '"4.7 kΩ"' in info.value.hint, info.value.hint
 
 
 def test_a_bare_number_is_given_one_example_its_own():

@@ -81,3 +81,19 @@ def test_a_names_column_left_out_changes_nothing_else():
     # kept, the column is as wide as its header and the name has its own line
     lines, dropped = fit_table(["a", "b", "id"], [["1", "2", LONG]], 30, keep=2, names=2)
     assert dropped == [] and lines == ["a  b  id", "1  2  " + LONG]
+
+
+def test_a_word_longer_than_its_cell_breaks_after_a_hyphen():
+    # invented test data, as 'parts show' met it at 80 columns: a source column of 14
+    # characters broke "general-purpose" as "gen" / "eral-purpose"
+    text = "typical of the class (common practice): general-purpose I/O leakage"
+    lines, _ = fit_table(["field", "source"], [["pins.sda.leakage", text]], 32, keep=2)
+    cell = [ln[18:] for ln in lines[1:]]
+    assert cell == ["typical of the", "class (common", "practice):", "general-",
+                    "purpose I/O", "leakage"], cell
+    # a hyphenated word that fits is never broken at its hyphen
+    lines, _ = fit_table(["n", "x"], [["a", "abc i2c-sda"]], 11, keep=2)
+    assert [ln[3:] for ln in lines[1:]] == ["abc", "i2c-sda"], lines
+    # a word without a hyphen is still broken where the width falls
+    lines, _ = fit_table(["n", "x"], [["a", "abcdefghijklmnopqrstuvwxyz"]], 13, keep=2)
+    assert [ln[3:] for ln in lines[1:]] == ["abcdefghij", "klmnopqrst", "uvwxyz"], lines

@@ -79,8 +79,15 @@ QUANTITY_TOO_LONG = "{n} characters: too long for a quantity (at most {limit})"
 # ---------------------------------------------------------------- pinlib/library/
 # loader.py
 NOT_A_PART_FILE = "not a part-class file"
+# loader.py and design/load.py: a file with no key (empty, blank, or comments only)
+FILE_HOLDS_NOTHING = "the file holds nothing (empty, or comments only)"
+DESIGN_IN_LIBRARY = ("a design file: a library folder holds part files only; keep designs "
+                     "in another folder")
 PART_NEEDS_ID = "a part file needs an id"
 LIBRARY_FOLDER_NOT_FOUND = "library folder not found"
+# folders.py, design/load.py and loader.py: a file (a team part's) named as a library
+LIBRARY_IS_A_FILE = "a file where a library folder belongs"
+LIBRARY_FILE_HINT = "name the folder that holds the part files: {folder}"
 # folders.py (the hint of LIBRARY_FOLDER_NOT_FOUND when a command was told to read it)
 FOLDER_NAMED_BY = "{source} names it: correct or remove it there"
 DUPLICATE_TEAM_ID = "two team parts share one id"
@@ -164,6 +171,7 @@ VALUE_FIELD_NO_SUBFIELDS = "a value field has no sub-fields"
 PATH_STOPS_AT_NAMED_TABLE = "the path stops at a table of named items"
 FIELD_TAKES_NO_VALUE = "this field takes no recorded value: {what}"
 PATH_STOPS_BEFORE_FIELD = "the path stops before a field"
+FIELD_WITHOUT_PIN = "a pin's field without its pin"
 # record.py
 BUILTIN_NOT_WRITTEN = "the built-in library is not written to"
 BUILTIN_NOT_WRITTEN_BECAUSE = "the built-in library is not written to ({reason})"

@@ -221,19 +221,52 @@ def likely_units(x: float, unit: str, field: str | None = None) -> tuple[str, ..
 
 
 def _with_unit(number: str, x: float, unit: str, field: str | None) -> str:
-    """``"20 MHz" or "20 kHz"``: the number with its likeliest units."""
-    return " or ".join(f'"{number} {u}"' for u in likely_units(x, unit, field))
+    """``"20 MHz" or "20 kHz"``: the number with its likeliest units; a number that is
+    most likely in the SI unit itself is offered as that, with its prefix
+    (``4700`` for a resistance: ``"4.7 kΩ"``)."""
+    units, si = _bare_readings(x, unit, field)
+    texts = [f'"{number} {u}"' for u in units]
+    if si:
+        texts.append(f'"{format_si(x, unit, 12)}"')
+    return " or ".join(texts)
+
+
+def _bare_readings(x: float, unit: str, field: str | None) -> tuple[tuple[str, ...], bool]:
+    """The prefixed units a bare number is offered in, and whether its reading in the SI
+    unit itself is offered too (common practice, no source).  A number under 0.001 (a
+    capacitance of 1e-11, a time of 2.5e-09), a resistance from 1000 (4700) or a
+    frequency from 10000 (400000) reads as no board value in a prefixed unit, and is
+    taken as written in the SI unit, as Python and spreadsheets write it.  A frequency
+    from 1000 is not offered in MHz (a GHz clock), but in kHz and in Hz; a current under
+    1 A in mA and in A."""
+    x_abs = abs(x)
+    units = likely_units(x, unit, field)
+    if unit == "%":
+        return units, False
+    if (0 < x_abs < 1e-3 or (unit == "Ω" and x_abs >= 1e3)
+            or (unit == "Hz" and x_abs >= 1e4)):
+        return (), True
+    if unit == "Hz" and x_abs >= 1e3:
+        return tuple(u for u in units if u != "MHz"), True
+    if unit == "A" and 0 < x_abs < 1:
+        return units, True
+    return units, False
 
 
 def _bare_hint(x: float, unit: str, field: str | None = None) -> str:
     """How to write a bare number with its unit.  A bare number between 0 and 1 for a
     percentage is most likely a fraction (0.05 for 5 %): both readings are offered, the
     fraction's first."""
-    hint = f"write it as a string with its unit, e.g. {_with_unit(str(x), x, unit, field)}"
     if unit == "%" and 0 < x < 1:
-        hint = (f"write it as a string with its unit: \"{x * 100:.10g} %\" if {x} is a "
-                f"fraction, or \"{x} %\" if you meant {x} percent")
-    return hint
+        return f"write it as a string with its unit: {_fraction_readings(str(x), x)}"
+    return f"write it as a string with its unit, e.g. {_with_unit(str(x), x, unit, field)}"
+
+
+def _fraction_readings(number: str, x: float) -> str:
+    """Both readings of a number between 0 and 1 written for a percentage, the
+    fraction's first."""
+    return f"\"{x * 100:.10g} %\" if {number} is a fraction, or \"{number} %\" if you " \
+           f"meant {number} percent"
 
 
 def _parse_text(text: str, unit: str, field: str | None) -> float:
@@ -265,17 +298,19 @@ def _parse_text(text: str, unit: str, field: str | None) -> float:
         return _scaled(f"{whole or '0'}.{frac or '0'}", scale)
     m = _PLAIN.match(text)
     if not m:
-        raise _fail(text, unit, field, M.NOT_A_QUANTITY)
+        raise _fail(text, unit, field, M.NOT_A_QUANTITY, hint=_plus_minus_hint(text, unit))
     number, rest = float(m.group(1)), m.group(2)
     if not rest:
         raise _fail(text, unit, field, M.BARE_NUMBER,
-                    hint=f"add the unit, e.g. {_with_unit(m.group(1), number, unit, field)}")
+                    hint=f"add the unit: {_fraction_readings(m.group(1), number)}"
+                    if unit == "%" and 0 < number < 1 else
+                    f"add the unit, e.g. {_with_unit(m.group(1), number, unit, field)}")
     written = rest.strip()
     rest = rest.replace("·", "").replace(" ", "")
     got = _split_unit(rest)
     if got is None:  # the unit as written ('pF pF', not 'pFpF')
         raise _fail(text, unit, field, M.UNKNOWN_UNIT.format(unit=written),
-                    hint=_unit_hint(text, m.group(1), rest, unit))
+                    hint=_unit_hint(text, m.group(1), rest, unit, field))
     scale, base = got
     if base != unit:
         raise _fail(text, unit, field, M.WRONG_DIMENSION.format(unit=base, quantity=UNITS[unit][0]))
@@ -291,18 +326,45 @@ _PREFIX_SHOWN = {1e12: "T", 1e9: "G", 1e6: "M", 1e3: "k", 1.0: "", 1e-3: "m", 1e
 _DECIMAL_COMMA = re.compile(r"^\s*[+-]?\d+,(?!\d{3}(?!\d))\d+(?![\d,])")
 
 
-def _unit_hint(text: str, number: str, rest: str, unit: str) -> str | None:
+#: Fields of a design whose tolerance has a field of its own beside them.
+_TOLERANCE_FIELDS = ("pullup", "supply")
+
+
+def _tolerance_hint(number: str, rest: str, unit: str, field: str | None) -> str | None:
+    """A value with its tolerance beside it, as a BOM writes it ("4.7 kΩ ±1%"): the value
+    to write, and where the tolerance goes (a design's ``pullup_tolerance``,
+    ``supply_tolerance``; a part states its limit, not a tolerance)."""
+    value = re.split(r"±|\+/-|\+-", rest, maxsplit=1)
+    if len(value) < 2:
+        return None
+    got = _split_unit(value[0])
+    if got is None or got[1] != unit:
+        return None
+    leaf = (field or "").rsplit(".", 1)[-1]
+    where = (f"and the tolerance as {leaf}_tolerance" if leaf in _TOLERANCE_FIELDS
+             else "the limit in the direction that hurts")
+    return f'a tolerance beside the value: write "{number} {value[0]}", {where}'
+
+
+def _unit_hint(text: str, number: str, rest: str, unit: str,
+               field: str | None = None) -> str | None:
     """What an unknown unit most likely meant, as the value to write: a decimal comma
     (``"10,5 pF"``), a prefix without its unit (``"10 p"``, ``"4.7 k"``), or a unit in the
     wrong case (``"10 pf"``; both readings where the case decides, ``"MHz" or "mHz"``).
     None when nothing is likely."""
     if unit not in ("Ω", "F", "H", "s", "V", "A", "Hz", "W"):
         return None
+    tolerance = _tolerance_hint(number, rest, unit, field)
+    if tolerance:
+        return tolerance
     if _DECIMAL_COMMA.match(text):
         fixed = text.strip().replace(",", ".", 1)
         return f'a decimal comma: write a point, "{fixed}"'
     if rest in _PREFIX:
-        return f'a prefix without its unit: write "{number} {rest}{unit}"'
+        return f'a prefix without its unit: write "{number} {_PREFIX_SHOWN[_PREFIX[rest]]}{unit}"'
+    if unit == "V" and re.fullmatch(r"V\d+", rest) and re.fullmatch(r"\d+", number):
+        # a rail's schematic name, 3V3: the unit where the decimal point goes
+        return f'the unit for the decimal point: write "{number}.{rest[1:]} V"'
     shown = []
     # a clock in MHz before mHz; a current in mA before MA
     letters = sorted([*_PREFIX.items(), ("", 1.0)], key=lambda kv: kv[1],
@@ -315,6 +377,23 @@ def _unit_hint(text: str, number: str, rest: str, unit: str) -> str | None:
         return None
     case = " (the case of a prefix matters: M is mega, m milli)" if len(shown) > 1 else ""
     return "write " + " or ".join(f'"{s}"' for s in shown) + case
+
+
+_PLUS_MINUS = re.compile(r"^\s*(?:±|\+/-|\+-)\s*")
+
+
+def _plus_minus_hint(text: str, unit: str) -> str | None:
+    """A percentage written with its ± ("±5 %", "+/-5%"), as datasheets write a
+    tolerance: the value to write, since a tolerance field is taken both ways."""
+    m = _PLUS_MINUS.match(text)
+    if unit != "%" or not m:
+        return None
+    rest = text[m.end():].strip()
+    if not _PLAIN.match(rest):
+        return None
+    number, after = _PLAIN.match(rest).groups()
+    return (f'a tolerance is taken both ways: write "{number} {after.strip() or "%"}" '
+            "without the ±")
 
 
 def _scaled(number: str, scale: float) -> float:
@@ -436,7 +515,9 @@ def parse_threshold(text: object, *, field: str | None = None) -> Threshold:
 
 
 _PERCENT_ALONE = re.compile(rf"^({_NUMBER})\s*%$")
-_VCC = re.compile(r"\bV(?:CC|DDIO|IO)\b", re.IGNORECASE)
+_VCC = re.compile(r"(?<![A-Za-z])V(?:CC|DDIO|IO)\b", re.IGNORECASE)  # "0.3VCC" too
+_TIMES_VDD = re.compile(r"(\d)\s*[x×]\s*(VDD)\b")
+_OFFSET_NO_UNIT = re.compile(rf"^VDD\s*[-+]\s*{_NUMBER}$")
 
 
 def _threshold_hint(body: str) -> str | None:
@@ -457,6 +538,12 @@ def _threshold_hint(body: str) -> str | None:
     if _VCC.search(fixed):
         fixed = _VCC.sub("VDD", fixed)
         why.append("the part's own supply is written VDD, a datasheet's VCC too")
+    if _TIMES_VDD.search(fixed):
+        fixed = _TIMES_VDD.sub(r"\1 \2", fixed)
+        why.append("a multiple of VDD is written 0.7 VDD")
+    if _OFFSET_NO_UNIT.match(fixed.strip()):
+        fixed = fixed.strip() + " V"
+        why.append("the offset with its unit")
     if why and reads(fixed):
         return f'write "{fixed}" ({"; ".join(why)})'
     if re.fullmatch(_NUMBER, body):

@@ -331,7 +331,8 @@ class Record:
                 if f.default_factory is not None:
                     values[f.name] = f.default_factory()
                 elif f.default is _MISSING:
-                    issues.append(Issue(loc + (f.key,), "missing", M.MISSING_FIELD))
+                    issues.append(Issue(loc + (f.key,), "missing", M.MISSING_FIELD,
+                                        expected=getattr(f.convert, "expected", None)))
                 else:
                     values[f.name] = f.default
                 continue
@@ -464,6 +465,7 @@ def _literal(allowed):
         return _FAIL
 
     conv.problem = M.NOT_ALLOWED_VALUE
+    conv.expected = expected  # what a missing field of these choices is told to hold
     return conv
 
 

@@ -21,6 +21,7 @@ lines under it::
 
 from __future__ import annotations
 
+import re
 import textwrap
 
 __all__ = ["fit_table"]
@@ -89,9 +90,7 @@ def fit_table(header: list[str], rows: list[list[str]], width: int | None = None
                 break
     out = []
     for k, row in enumerate(cells):
-        wrapped = [[row[i]] if i == names else
-                   textwrap.wrap(row[i], widths[i], break_long_words=True,
-                                 break_on_hyphens=False) or [""] for i in cols]
+        wrapped = [[row[i]] if i == names else _wrap_cell(row[i], widths[i]) for i in cols]
         if names in cols and len(row[names]) > widths[names]:
             at = cols.index(names)
             # the name whole after the first line of the cells before it; the rest of
@@ -107,3 +106,33 @@ def fit_table(header: list[str], rows: list[list[str]], width: int | None = None
         if k == 0 and rule:
             out.append(_GAP.join("-" * widths[i] for i in cols))
     return out, dropped[::-1]
+
+
+def _wrap_cell(text: str, width: int) -> list[str]:
+    """A cell's lines: broken between words, never at the hyphen of a word that fits (an
+    id, 'i2c-sda'); a word longer than the cell is broken after its hyphens first
+    ("general-" / "purpose", where it read "gen" / "eral-purpose"), then where the width
+    falls."""
+    words = text.split()
+    if all(len(w) <= width for w in words):
+        return textwrap.wrap(text, width, break_long_words=True,
+                             break_on_hyphens=False) or [""]
+    chunks: list[tuple[str, bool]] = []  # (text, a space before it)
+    for word in words:
+        if len(word) <= width:
+            chunks.append((word, True))
+            continue
+        pieces = [p for p in re.split(r"(?<=-)", word) if p]
+        for k, piece in enumerate(pieces):
+            for j in range(0, len(piece), width):
+                chunks.append((piece[j:j + width], k == 0 and j == 0))
+    lines: list[str] = []
+    line = ""
+    for chunk, spaced in chunks:
+        joined = line + (" " if spaced and line else "") + chunk
+        if len(joined) <= width:
+            line = joined
+        else:
+            lines.append(line)
+            line = chunk
+    return [ln for ln in lines if ln] + [line]

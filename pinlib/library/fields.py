@@ -249,5 +249,11 @@ def resolve_path(text: str) -> tuple[tuple[str, ...], ValueKind]:
             if StatedList in _flat_args(info.annotation) else "not a value with a unit")
         raise LibraryError(M.FIELD_TAKES_NO_VALUE.format(what=what), field=".".join(path),
                            value=text, expected="a field such as c_in, v_il, timing.f_max")
+    if len(path) >= 2 and path[-2] == "pins" and path[-1] in model.fields() \
+            and value_kind(model.fields()[path[-1]]) is not None:
+        # "c_in" read as a pin named c_in: the field is there, its pin is missing
+        name, before = path[-1], "".join(f"{k}." for k in path[:-2])
+        raise LibraryError(M.FIELD_WITHOUT_PIN, field=before + name, value=text,
+                           expected=f"{before}PIN.{name} (e.g. {before}sda.{name})")
     raise LibraryError(M.PATH_STOPS_BEFORE_FIELD, field=".".join(path), value=text,
                        expected="PIN.FIELD, timing.FIELD or supply.min/max")

@@ -38,6 +38,9 @@ def require_folders(given: Iterable[str | os.PathLike] = (), *, env: bool = True
     sources = [(p, ENV) for p in (library_folders(env=True) if env else [])]
     sources += [(Path(p), option) for p in given]
     for path, source in sources:
+        if path.exists() and not path.is_dir():
+            raise InputError(M.LIBRARY_IS_A_FILE, field=source, value=str(path),
+                             hint=M.LIBRARY_FILE_HINT.format(folder=path.parent))
         if not path.is_dir():
             raise InputError(M.LIBRARY_FOLDER_NOT_FOUND, field=source, value=str(path),
                              hint=M.FOLDER_NAMED_BY.format(source=source))

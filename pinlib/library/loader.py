@@ -53,6 +53,10 @@ BUILTIN_DIR = Path(os.environ.get("PINLIB_BUILTIN",
                                   Path(__file__).resolve().parents[1] / "devices"))
 
 _NOT_INHERITED = {"id", "extends", "abstract"}
+#: Tables that describe the file that states them: a part that states its own replaces
+#: its class's whole (merged key by key, a team part's basis took its class's source and
+#: date: "datasheet, typical of the class").  A part that states none takes its class's.
+_REPLACED_WHOLE = {"provenance"}
 
 #: Bounds of what the library reads (each refusal names the limit): a part file holds
 #: a few kilobytes; a library folder is a folder of part files, not a disk.
@@ -91,9 +95,12 @@ def read_part_file(path: Path, *, builtin: bool = False) -> PartFile:
     raw, text = load(path, error=LibraryError, max_bytes=MAX_PART_BYTES)
     pf = PartFile(Path(path), raw, text, builtin)
     fmt = raw.get("format")
+    if not raw:
+        raise LibraryError(M.FILE_HOLDS_NOTHING, file=str(path), expected=f'format = "{FORMAT}"')
     if fmt != FORMAT:
         raise LibraryError(M.NOT_A_PART_FILE, file=str(path), line=pf.line(("format",)),
-                           field="format", value=fmt, expected=f'format = "{FORMAT}"')
+                           field="format", value=fmt, expected=f'format = "{FORMAT}"',
+                           hint=M.DESIGN_IN_LIBRARY if fmt == "pinlib.design/1" else None)
     if not isinstance(raw.get("id"), str) or not raw["id"]:
         raise LibraryError(M.PART_NEEDS_ID, file=str(path), line=pf.line(("id",)),
                            field="id", expected="a lowercase id such as \"eeprom-i2c\"")
@@ -179,6 +186,7 @@ def _merge(parent: dict, child: dict, parent_origin: dict, child_id: str, top=Tr
             merged[key] = value
             continue
         if (isinstance(value, dict) and isinstance(merged.get(key), dict)
+                and not (top and key in _REPLACED_WHOLE)
                 and not _is_value_table(value) and not _is_value_table(merged[key])):
             sub, sub_origin = _merge(merged[key], value,
                                      {k[1:]: v for k, v in groups.get(key, {}).items()},
@@ -526,6 +534,9 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
         if not folder.is_dir():
             err = LibraryError(M.LIBRARY_FOLDER_NOT_FOUND, file=str(folder),
                                hint=_builtin_hint() if is_builtin else None)
+            if folder.exists():
+                err = LibraryError(M.LIBRARY_IS_A_FILE, file=str(folder),
+                                   hint=M.LIBRARY_FILE_HINT.format(folder=folder.parent))
             if strict or is_builtin:  # without the built-in parts every id is unknown
                 raise err
             lib.problems.append(err)

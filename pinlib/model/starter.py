@@ -98,13 +98,20 @@ def _drives_clock(part, proto) -> bool:
     return found is not None and found[1].drive != "input"
 
 
+#: Rails boards commonly have, the likeliest first (common practice, no source): the
+#: rail a part that states no typical supply is put on, where its range holds one.
+_COMMON_RAILS = (3.3, 5.0, 1.8, 2.5, 1.2)
+
+
 def _supply(part) -> float:
     s = part.supply
     if s is None:
         return 3.3  # a common rail, common practice; the comment asks for the real one
     if s.typ is not None:
         return s.typ.value
-    return round((s.min.value + s.max.value) / 2, 2)
+    # the middle of its range read 3.55 V for a 1.6 V to 5.5 V part: a rail no board has
+    common = [v for v in _COMMON_RAILS if s.min.value <= v <= s.max.value]
+    return common[0] if common else round((s.min.value + s.max.value) / 2, 2)
 
 
 def _rail_name(segment: list[str]) -> str:
@@ -179,18 +186,30 @@ def _segments(members, ctrl, bridge) -> list[list[str]] | None:
     return [_open_drain_rail(here, ctrl, (pl, near)), _open_drain_rail(there, None, (pl, far))]
 
 
-def _bus(group, members, bridges=()) -> tuple[list[str], bool]:
-    """A bus's lines, and whether the bridging part (the one of ``bridges``) is on it."""
+def _bus(group, members, bridges=(), notes=None) -> tuple[list[str], bool]:
+    """A bus's lines, and whether the bridging part (the one of ``bridges``) is on it.
+    Where no part drives the clock, the first stands in as the controller (a design
+    needs one), which the file and ``notes`` say."""
     proto = group[0]
-    ctrl = next((pl for pl, p in members if _drives_clock(p, proto)), members[0][0])
+    ctrl = next((pl for pl, p in members if _drives_clock(p, proto)), None)
+    stand_in = ctrl is None
+    ctrl = ctrl or members[0][0]
     ctrl_part = dict((pl.ref, p) for pl, p in members)[ctrl.ref]
     supply = format_si(_supply(ctrl_part), "V")
     others = [p.name for p in group[1:]]
     kind = f'protocol = "{proto.name}"'
     refs = ", ".join(pl.ref for pl, _ in members)
-    out = ["", *wrap(f"The {proto.name.upper()} bus of {refs}.", WIDTH, "# ", ""),
-           "[[bus]]", f'id = "{proto.name}"',
-           _noted(kind, "or " + " or ".join(f'"{o}"' for o in others)) if others else kind]
+    out = ["", *wrap(f"The {proto.name.upper()} bus of {refs}.", WIDTH, "# ", "")]
+    if stand_in:
+        clock = "SCL" if proto.open_drain else "SCLK"
+        note = (f"no part given drives {clock}: {ctrl.ref} stands in as the controller "
+                f"of the {proto.name.upper()} bus until you add the real one "
+                f"(--part REF=PART)")
+        out += wrap(f"Placeholder: {note}.", WIDTH, "# ", "")
+        if notes is not None:
+            notes.append(note)
+    out += ["[[bus]]", f'id = "{proto.name}"',
+            _noted(kind, "or " + " or ".join(f'"{o}"' for o in others)) if others else kind]
     if proto.open_drain:
         out += [f"# mode: I2C {_choices(I2C_MODE_NAMES)}; SMBus {_choices(SMBUS_CLASS_NAMES)}",
                 'mode = "standard"', 'clock = "100 kHz"']
@@ -277,7 +296,8 @@ def _gpio_bus(name: str, pins: list, taken: set[str]) -> list[str]:
 
 
 def starter_text(title: str, placed: list[tuple[Placement, object]],
-                 library: list[str] | tuple[str, ...] = ()) -> tuple[str, int]:
+                 library: list[str] | tuple[str, ...] = (),
+                 notes: list[str] | None = None) -> tuple[str, int]:
     """The text of a starter design file.
 
     Parameters
@@ -290,6 +310,9 @@ def starter_text(title: str, placed: list[tuple[Placement, object]],
         Team library folders for the design's ``library`` line, as the design file
         names them (relative to its folder): without them a team part placed from a
         ``--library`` folder would be unknown when the design is next read.
+    notes : list of str, optional
+        Filled with what the reader should know about the file written: a part that
+        stands in as a bus's controller, since no part given drives its clock.
 
     Returns
     -------
@@ -320,7 +343,7 @@ def starter_text(title: str, placed: list[tuple[Placement, object]],
             continue
         bridges = [(pl, p) for pl, p in serving if p.sides and group[0].open_drain]
         buses += 1
-        text, bridged = _bus(group, members, bridges)
+        text, bridged = _bus(group, members, bridges, notes)
         out += text
         on_bus |= {pl.ref for pl, _ in members + (bridges if bridged else [])}
     taken = set(protocols.PROTOCOLS)  # a bus named like a protocol's would read oddly

@@ -64,13 +64,21 @@ def add_parser(sub) -> None:
 
 def _position_category(text: str) -> str:
     """A category ``--category`` takes; ``cable`` refused with why (a cable stands at no
-    position), the others left to the option's choices."""
-    if text == "cable":
-        from pinlib.library.schema import POSITION_CATEGORIES
+    position), another unknown one with the closest, in the words of the other commands'
+    refusals (argparse's "invalid choice" listed the choices quoted, and no closest)."""
+    from pinlib.library.schema import POSITION_CATEGORIES
 
+    if text == "cable":
         raise argparse.ArgumentTypeError(
             M.CABLE_NOT_RANKED + f" (got {text!r}); expected one of "
             + ", ".join(POSITION_CATEGORIES))
+    if text not in POSITION_CATEGORIES:  # as 'parts list --category' words it
+        from pinlib.core import nearby
+
+        hint = nearby.closest_hint(text, POSITION_CATEGORIES, cutoff=0.4)
+        raise argparse.ArgumentTypeError(
+            M.NOT_ALLOWED_VALUE + f" (got {text!r}); expected one of "
+            + ", ".join(POSITION_CATEGORIES) + (f"; {hint}" if hint else ""))
     return text
 
 

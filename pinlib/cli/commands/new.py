@@ -112,7 +112,7 @@ def run(args) -> int:
         try:
             part = lib.get(pid, field="--part")
         except InputError as err:
-            if pid in lib.files:
+            if pid in lib.files or lib.problems_of(pid):
                 raise  # a part that does not load: its own file's error
             from pinlib.library.folders import team_folders_hint
 
@@ -124,7 +124,9 @@ def run(args) -> int:
             raise InputError(text.format(part=pid), field="--part", value=f"{ref}={pid}")
         placed.append((Placement(ref, pid), part))
     title = args.title or os.path.splitext(os.path.basename(args.design))[0]
-    text, buses = starter_text(title, placed, _design_folders(args.library, args.design))
+    notes: list[str] = []
+    text, buses = starter_text(title, placed, _design_folders(args.library, args.design),
+                               notes)
     if not buses:
         raise InputError(M.NO_BUS_FOR_PARTS, field="--part",
                          value=", ".join(f"{r}={p}" for r, p in placements),
@@ -132,4 +134,9 @@ def run(args) -> int:
     atomic_write(args.design, text)
     print(f"wrote {args.design} ({buses} bus{'es' if buses > 1 else ''}); "
           f"check it with: pinlib check {args.design}", file=sys.stderr)
+    if notes:
+        from pinlib.present.terminal import fitted
+
+        for note in notes:
+            print(fitted(f"note: {note}", sys.stderr), file=sys.stderr)
     return 0

@@ -91,6 +91,7 @@ the file is left as it was. Built-in parts are never written: make a team part f
 examples:
   pinlib parts check         # the whole merged library
   pinlib parts check parts   # every file of one folder, against the library
+  pinlib parts check parts/eeprom-acme.toml   # one part file of that folder
 
 Exit code 0 when every file is valid, 1 when any problem is found.
 """,
@@ -114,7 +115,8 @@ def add_parser(subparsers) -> None:
     common = argparse.ArgumentParser(add_help=False)
     common.add_argument("--library", metavar="DIR", action="append", default=[],
                         help="a team library folder (repeatable; after PINLIB_LIBRARY)")
-    parser = subparsers.add_parser("parts", help=HELP, description=HELP.capitalize() + ".",
+    parser = subparsers.add_parser("parts", help=HELP,
+                                   description=HELP[:1].upper() + HELP[1:] + ".",
                                    epilog=EPILOG,
                                    formatter_class=HelpLayout)
     sub = parser.add_subparsers(dest="parts_command", metavar="ACTION")
@@ -162,7 +164,8 @@ def add_parser(subparsers) -> None:
 
     p = action("check", "check part files and report every problem", _run_check)
     p.add_argument("folder", metavar="FOLDER", nargs="?",
-                   help="check the files of this folder (default: the whole library)")
+                   help="check the files of this folder, or one part file (default: the "
+                        "whole library)")
     p.add_argument("--json", action="store_true", help="print the problems as JSON")
 
     p = action("schema", "print the JSON Schema of part files", _run_schema)
@@ -423,6 +426,8 @@ def _refuse_unknown(lib, pid: str, field: str, args) -> None:
     try:
         lib.get(pid)
     except InputError as err:
+        if lib.problems_of(pid):
+            raise  # a file holds it and cannot be read: that file's line and problem
         from pinlib.library.folders import team_folders_hint
 
         raise InputError(err.problem, field=field, value=pid, hint="; ".join(

@@ -38,10 +38,15 @@ def run_check(args, load) -> int:
         n_files = len(lib.files)
     else:
         folder = Path(args.folder)
-        if not folder.is_dir():
+        one = folder if folder.is_file() else None  # one part file: its folder's library
+        if one is not None:
+            folder = one.parent
+        elif not folder.exists():
+            raise InputError(M.LIBRARY_FOLDER_NOT_FOUND, file=str(folder), field="FOLDER")
+        elif not folder.is_dir():
             raise InputError(M.NOT_A_FOLDER, file=str(folder), field="FOLDER")
         lib = load(args, extra=[folder])
-        root = folder.resolve()
+        root = (one or folder).resolve()  # _under(file, file) holds: that file alone
         problems = [p for p in lib.problems if p.file and _under(p.file, root)]
         problems += [w for pid in lib.parts if _under(lib.files[pid].path, root)
                      for w in part_warnings(lib.parts[pid], lib, own_only=True)]
@@ -60,8 +65,8 @@ def run_check(args, load) -> int:
                      for p in unsourced(pf)]
         from pinlib.library.walk import part_paths
 
-        n_files = len(part_paths(folder)[0])  # the files the bounded walk read
-        scope = _rel(folder)
+        n_files = 1 if one is not None else len(part_paths(folder)[0])  # as the walk read
+        scope = _rel(one if one is not None else folder)
     # A problem of a class is a problem of every part that extends it, each failing
     # with the same error at the class's line: listed once.
     once: dict = {}
@@ -79,6 +84,7 @@ def run_check(args, load) -> int:
             print(fitted(p.message))
         n = len(problems)
         verdict = "no problems" if not n else f"{n} problem{'s' if n != 1 else ''}"
-        print(fitted(f"checked {n_files} file{'s' if n_files != 1 else ''} in {scope}: "
-                     f"{verdict}"))
+        where = f", {scope}" if getattr(args, "folder", None) and Path(args.folder).is_file() \
+            else f" in {scope}"
+        print(fitted(f"checked {n_files} file{'s' if n_files != 1 else ''}{where}: {verdict}"))
     return 1 if problems else 0

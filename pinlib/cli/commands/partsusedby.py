@@ -39,6 +39,12 @@ def _toml_files_here() -> list:
 def _not_found(lib, args, designs: int | None) -> InputError:
     from pinlib.library.folders import team_folders_hint
 
+    if lib.problems_of(args.id):  # a file holds it and cannot be read: that file's error
+        try:
+            lib.get(args.id)
+        except InputError as err:
+            return err
+
     near = lib.closest(args.id)
     hints = (["closest: " + ", ".join(near)] if near else []) + [
         team_folders_hint(args.library, designs=designs)]

@@ -62,6 +62,8 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
     def at(loc):
         return {"file": fname, "line": line_of(index, loc)}
 
+    if not data:
+        raise DesignError(M.FILE_HOLDS_NOTHING, file=fname, expected=f'format = "{FORMAT}"')
     if data.get("format") != FORMAT:
         raise DesignError(M.NOT_A_DESIGN, field="format", value=data.get("format"),
                           expected=f'format = "{FORMAT}"', **at(("format",)))
@@ -82,6 +84,11 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
         base = path.parent if path else Path.cwd()
         own = [base / p for p in raw.library]
         for i, folder in enumerate(own):
+            if folder.exists() and not folder.is_dir():
+                raise DesignError(M.LIBRARY_IS_A_FILE, field=f"library[{i}]",
+                                  value=raw.library[i], hint=M.LIBRARY_FILE_HINT.format(
+                                      folder=Path(raw.library[i]).parent),
+                                  **at(("library", i)))
             if not folder.is_dir():
                 raise DesignError(M.DESIGN_LIBRARY_MISSING, field=f"library[{i}]",
                                   value=raw.library[i], hint=M.LOOKED_FOR.format(path=folder),
