@@ -33,7 +33,9 @@ How a line is built
   one lumped capacitance (:func:`~pinlib.physics.waveform.lumped_response`) only
   when the line's inductance is also negligible against the RC
   (:data:`LUMPED_RULE`): a driver much stronger than the line impedance rings even on
-  a short trace, and there the chain is solved too.
+  a short trace, and there the chain is solved too.  An open-drain rise, a step
+  through the pull-up into capacitances spread along the net, is held to a stricter
+  limit (:data:`PULLUP_RISE_RULE`): the inductance between them rings.
 * **Driver model.**  :func:`pinlib.physics.driver.driver_from_pin`: a ramp behind
   ``r_out`` for each edge.  An open-drain GPIO driver sinks through ``v_ol / i_ol``
   against the pull-ups on the net, and the line rises through them.
@@ -109,6 +111,8 @@ from pinlib.engines.pushline.rules import (  # noqa: F401
     LUMPED_INDUCTANCE_LIMIT,
     LUMPED_RULE,
     MAX_TIME_STEPS,
+    PULLUP_RISE_INDUCTANCE_LIMIT,
+    PULLUP_RISE_RULE,
     SIGNAL_FUNCTION,
     TERMINATION_RULE,
     UNDERSHOOT_DEFAULT,
@@ -133,6 +137,8 @@ __all__ = [
     "LONG_LINE_RULE",
     "LUMPED_INDUCTANCE_LIMIT",
     "LUMPED_RULE",
+    "PULLUP_RISE_INDUCTANCE_LIMIT",
+    "PULLUP_RISE_RULE",
     "EDGE_FRACTION",
     "EDGE_RULE",
     "UNDERSHOOT_DEFAULT",

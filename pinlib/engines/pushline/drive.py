@@ -12,7 +12,7 @@ from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
 from pinlib.engines import memo
 from pinlib.engines.pushline.pins import Endpoint, Flight
-from pinlib.engines.pushline.rules import _REF_LEVEL
+from pinlib.engines.pushline.rules import _REF_LEVEL, PULLUP_RISE_INDUCTANCE_LIMIT
 from pinlib.engines.pushline.sections import Stretch, line_model, needs_distributed
 from pinlib.engines.pushline.waves import EdgeWave, simulate_edge, solve_edges
 from pinlib.library.schema import Pin
@@ -363,11 +363,13 @@ def edge_plan(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver,
         # driver's point (c_own), which drive_case solves as a chain of two points.
         c_all = c_far + driver.c_in
         # the rise is a step through the pull-up: a line for it only where its RC would
-        # be off (L / (R^2 C)), not for being long against the sink's fast fall; and not
-        # behind a series resistor, which parts the sink's pin from the line's pull-up on
-        # the board (one source cannot hold that: as a line the rise read up to 10 %
-        # faster than ngspice, lumped it reads about 2 % slower)
-        rise_dist = rs <= 0 and needs_distributed(stretches, rp, c_all, False)
+        # be off (L / (R^2 C) against PULLUP_RISE_INDUCTANCE_LIMIT: the line's
+        # inductance rings between the spread capacitances), not for being long against
+        # the sink's fast fall; and not behind a series resistor, which parts the sink's
+        # pin from the line's pull-up on the board (one source cannot hold that: as a
+        # line the rise read up to 10 % faster than ngspice, lumped about 2 % slower)
+        rise_dist = rs <= 0 and needs_distributed(stretches, rp, c_all, False,
+                                                  PULLUP_RISE_INDUCTANCE_LIMIT)
         distributed = needs_distributed(stretches, r_th, c_all, long)
         own = driver.c_in if (rise_dist or distributed) and driver.c_in > 0 else 0.0
         return EdgePlan((rp, 0.0, c_far if rise_dist and own else c_all, v_lo, v_hi),

@@ -36,6 +36,7 @@ from pinlib.engines.pushline.rules import (
     LOSS_DELAY,
     LOSS_FRACTION,
     LUMPED_RULE,
+    PULLUP_RISE_RULE,
     RHO_COPPER,
 )
 from pinlib.engines.pushline.sections import line_model, stretches_of
@@ -592,6 +593,8 @@ def _add_figures(a: LineAnalysis, res: LineResult) -> None:
     res.figure("model", "distributed" if used else "lumped", "")
     if not a.long:
         res.notes.append(("distributed" if used else "lumped") + f" model: {LUMPED_RULE}")
+        if any(c.driver.pin.drive == "open-drain" for c in a.cases.values()):
+            res.notes.append(f"open-drain rise: {PULLUP_RISE_RULE}")
     res.figure("delay_to_edge_ratio", a.ratio, "")
 
 

@@ -131,7 +131,7 @@ def line_model(stretches: Sequence[Stretch], edge_time: float, *,
 
 
 def needs_distributed(stretches: Sequence[Stretch], r_source: float, c_load: float,
-                      long: bool) -> bool:
+                      long: bool, limit: float = LUMPED_INDUCTANCE_LIMIT) -> bool:
     """Whether a line must be solved as a chain of lines rather than one capacitance.
 
     Parameters
@@ -145,11 +145,14 @@ def needs_distributed(stretches: Sequence[Stretch], r_source: float, c_load: flo
         Capacitance at the far end (pins and extra capacitance). [F]
     long : bool
         Electrically long by :data:`LONG_LINE_RULE`. [1]
+    limit : float, optional
+        The largest ``L / (R^2 C)`` taken lumped: :data:`LUMPED_INDUCTANCE_LIMIT`, or
+        :data:`PULLUP_RISE_INDUCTANCE_LIMIT` for an open-drain rise. [1]
 
     Returns
     -------
     bool
-        True when the line is long, or when ``L / (R^2 C) > 0.01`` with
+        True when the line is long, or when ``L / (R^2 C) > limit`` (0.01) with
         ``L = sum(Z0 td)`` and ``C`` the whole capacitance (:data:`LUMPED_RULE`);
         False for a line without any delay. [1]
 
@@ -166,4 +169,4 @@ def needs_distributed(stretches: Sequence[Stretch], r_source: float, c_load: flo
     c_total = sum(s.c for s in stretches) + c_load
     if long or r_source <= 0.0 or c_total <= 0.0:
         return True
-    return bool(ell / (r_source * r_source * c_total) > LUMPED_INDUCTANCE_LIMIT)
+    return bool(ell / (r_source * r_source * c_total) > limit)
