@@ -364,7 +364,8 @@ def _unit_hint(text: str, number: str, rest: str, unit: str,
         return f'a prefix without its unit: write "{number} {_PREFIX_SHOWN[_PREFIX[rest]]}{unit}"'
     if unit == "V" and re.fullmatch(r"V\d+", rest) and re.fullmatch(r"\d+", number):
         # a rail's schematic name, 3V3: the unit where the decimal point goes
-        return f'the unit for the decimal point: write "{number}.{rest[1:]} V"'
+        return (f'a rail\'s name, its unit where the decimal point goes: write '
+                f'"{number}.{rest[1:]} V"')
     shown = []
     # a clock in MHz before mHz; a current in mA before MA
     letters = sorted([*_PREFIX.items(), ("", 1.0)], key=lambda kv: kv[1],
