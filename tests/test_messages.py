@@ -1755,7 +1755,8 @@ def _(env):
 
 @case("LINE_PULLUP_NOT_GPIO")
 def _(env):
-    return _fails(lambda e: e.design(SPI_BUS.replace(
+    # an I2C bus's pull-up written inside its trace, as a GPIO or SPI line takes it
+    return _fails(lambda e: e.design(I2C_BUS.replace(
         'geometry = "g" }', 'geometry = "g", pullup = "10 kΩ" }')), env)
 
 

@@ -958,40 +958,60 @@ def test_a_line_pull_up_takes_a_tolerance_of_its_own(tmp_path):
     assert "needs the line's pullup" in str(got.value)
 
 
-@pytest.mark.parametrize("body, field", [
-    ("""[[bus]]
-id = "s"
-protocol = "spi"
-clock = "1 MHz"
-supply = "3.3 V"
-devices = [{ ref = "U1", part = "mcu-3v3", role = "controller" },
-           { ref = "U2", part = "nor-flash-spi" }]
-lines.sclk = { length = "5 cm", capacitance = "1 pF/cm", pullup_tolerance = "5 %" }
-""", "bus[0].lines.sclk.pullup_tolerance"),
-    ("""[[bus]]
-id = "s"
-protocol = "spi"
-clock = "1 MHz"
-supply = "3.3 V"
-devices = [{ ref = "U1", part = "mcu-3v3", role = "controller" },
-           { ref = "U2", part = "nor-flash-spi" }]
-lines.sclk = { length = "5 cm", capacitance = "1 pF/cm", pullup = "10 kΩ" }
-""", "bus[0].lines.sclk.pullup"),
-    ("""[[bus]]
+def test_a_line_pull_up_is_refused_on_an_open_drain_bus(tmp_path):
+    # an I2C bus takes its pull-up beside its trace, not inside it as a line does
+    with pytest.raises(DesignError) as got:
+        _builtin_design(tmp_path, """[[bus]]
 id = "i"
 protocol = "i2c"
 supply = "3.3 V"
 trace = { length = "5 cm", capacitance = "1 pF/cm", pullup = "10 kΩ" }
 devices = [{ ref = "U1", part = "mcu-3v3", role = "controller" },
            { ref = "U2", part = "eeprom-i2c" }]
-""", "bus[0].trace.pullup"),
-])
-def test_a_line_pull_up_is_refused_off_a_gpio_line(tmp_path, body, field):
+""")
+    assert got.value.field == "bus[0].trace.pullup"
+    assert got.value.line == 8
+    assert "only a GPIO or SPI line takes a pullup" in str(got.value)
+
+
+_SPI_CS = """[[bus]]
+id = "s"
+protocol = "spi"
+clock = "1 MHz"
+supply = "3.3 V"
+devices = [{ ref = "U1", part = "mcu-3v3", role = "controller" },
+           { ref = "U2", part = "nor-flash-spi" }]
+lines.sclk = { length = "5 cm", capacitance = "1 pF/cm", delay = "60 ps/cm" }
+"""
+
+
+def test_an_spi_pull_up_tolerance_without_its_pull_up_is_refused(tmp_path):
     with pytest.raises(DesignError) as got:
-        _builtin_design(tmp_path, body)
-    assert got.value.field == field
-    assert got.value.line == (11 if "lines" in field else 8)
-    assert "only a GPIO line takes a pullup" in str(got.value)
+        _builtin_design(tmp_path, _SPI_CS + 'lines.cs = { length = "5 cm", capacitance = '
+                        '"1 pF/cm", delay = "60 ps/cm", pullup_tolerance = "5 %" }\n')
+    assert got.value.field == "bus[0].lines.cs.pullup_tolerance"
+
+
+@pytest.mark.parametrize(("pullup", "status"), [("10 kΩ", "pass"), ("330 Ω", "fail")])
+def test_a_chip_select_pull_up_is_held_to_the_controllers_sink(tmp_path, pullup, status):
+    # a CS line pulled up to keep the memory deselected while the controller's pin is
+    # not yet driving (common practice): while the controller holds CS low it sinks the
+    # pull-up's current, against the i_ol its part rates v_ol at (the sink-current check
+    # of GPIO lines)
+    d = _builtin_design(tmp_path, _SPI_CS + 'lines.cs = { length = "5 cm", capacitance = '
+                        f'"1 pF/cm", delay = "60 ps/cm", pullup = "{pullup}" }}\n')
+    res = evaluate_bus(d.buses[0], d)
+    (sink,) = [c for seg, line, c in res.all_checks() if line == "cs" and c.id == "sink-current"]
+    ctrl = d.buses[0].devices[0].part.pins["cs"]
+    i_ol = float(ctrl.i_ol.at())
+    rp = 1e4 if pullup == "10 kΩ" else 330.0
+    # derived: V / (Rp + v_ol/i_ol) at the pull-up's -1 % corner (the bus's supply has
+    # no tolerance here)
+    v_ol = float(ctrl.v_ol.at(3.3))
+    assert sink.value == pytest.approx(3.3 / (rp * 0.99 + v_ol / i_ol), rel=1e-9)
+    assert sink.status == status
+    assert not [c for seg, line, c in res.all_checks() if line == "sclk"
+                and c.id == "sink-current"]  # a line without a pull-up has none
 
 
 def test_a_pin_that_names_no_line_of_a_bus_of_several_is_refused_at_the_device(tmp_path):

@@ -87,7 +87,7 @@ def parameter_specs(bus: Bus) -> list[tuple]:
 
 def line_of_key(key: tuple) -> str | None:
     """The line a parameter key of :func:`parameter_specs` belongs to (its length or
-    extra capacitance, a GPIO line's pull-up), or None for one every line shares (a rail,
+    extra capacitance, a line's pull-up), or None for one every line shares (a rail,
     a device's pins)."""
     return key[2] if key[0] in ("line-length", "line-extra", "line-pullup") else None
 

@@ -4,6 +4,7 @@
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 
 import numpy as np
 
@@ -260,6 +261,8 @@ def line_setup(bus: Bus, design: Design,
             if not drivers:
                 notes.append("cipo is routed but no peripheral drives it; line not evaluated")
                 continue
+        if line.pullup is not None:  # to the bus rail, as varied on this board
+            line = replace(line, pullup_rail=float(bus.supply))
         out[sig] = LineInputs(sig, line, tuple(drivers), tuple(loads), tuple(receivers),
                               clock=bus.clock, clock_line=(sig == "sclk"), warn_margin=warn,
                               bus_id=bus.id)

@@ -161,10 +161,8 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
             alike = look_alikes(points, devices, rb.protocol, sig, len(rb.lines), homes)
         else:
             secs, points = sections(rt, loc), ()
-        key = _line_pullup_key(rt)
-        if key and rb.protocol != "gpio":
-            raise err(M.LINE_PULLUP_NOT_GPIO, loc + (key,),
-                      hint="an SPI line is driven push-pull both ways")
+        # a line's own pull-up: a GPIO line's, or an SPI line's (a chip select held
+        # high while its driver is not yet driving, a CIPO while no peripheral drives it)
         if rt.pullup_tolerance is not None and rt.pullup is None:
             raise err(M.LINE_PULLUP_TOLERANCE_ALONE, loc + ("pullup_tolerance",),
                       expected='pullup = "10 kΩ" beside it, or no pullup_tolerance')
@@ -193,8 +191,8 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
 
 
 def _line_pullup_key(trace) -> str | None:
-    """The first key of a GPIO line's own pull-up a trace writes (``pullup``, then
-    ``pullup_tolerance``), or None: only a GPIO line takes them."""
+    """The first key of a line's own pull-up a trace writes (``pullup``, then
+    ``pullup_tolerance``), or None: only a GPIO or SPI line takes them."""
     return next((k for k in ("pullup", "pullup_tolerance") if getattr(trace, k) is not None),
                 None)
 

@@ -131,7 +131,7 @@ class Line:
     # the design but for its case; (junction, "") for a mid-route junction named in the
     # style of the line's devices (their letters, then digits) that names no device.
     look_alikes: tuple[tuple[str, str], ...] = ()
-    # A GPIO line's pull-up resistor (``lines.<signal>.pullup``) [Ω], and the rail it
+    # A GPIO or SPI line's pull-up resistor (``lines.<signal>.pullup``) [Ω], and the rail it
     # pulls to [V]: the bus supply, set where the line is analysed (it follows a varied
     # board's rail).
     pullup: float | None = None

@@ -171,8 +171,8 @@ class RawTrace(RawSection):
     length: Length | None = None  # type: ignore[assignment]
     series_resistor: SeriesSetting = "none"  # push-pull lines only
     extra_capacitance: Capacitance = 0.0
-    pullup: Pullup | None = None  # GPIO lines only: a resistor to the bus supply
-    pullup_tolerance: Tolerance | None = None  # GPIO lines only: ± of that resistor
+    pullup: Pullup | None = None  # GPIO and SPI lines: a resistor to the bus supply
+    pullup_tolerance: Tolerance | None = None  # lines with a pullup: ± of that resistor
 
 
 class RawCable(Record):
