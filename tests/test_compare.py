@@ -556,6 +556,34 @@ def test_a_margin_in_seconds_is_listed_and_shown_in_its_unit():
     assert "old_margin_unit" not in r.to_json()
 
 
+def test_a_margin_beyond_the_shown_range_on_both_sides_did_not_move():
+    # invented check values. A 20 kHz bus's setup time: 25.9 µs against 250 ns, then
+    # 23.4 µs with a slower part (derived: margins +102.6 and +92.6, 10 % of themselves).
+    # Both read "> +999 %": a line "margin > +999 % → > +999 %" told the reader nothing
+    # moved, so it is not listed (the setup-margin figure, in µs, says by how much)
+    chk = {"id": "setup-time", "status": "pass", "value": 25.9e-6, "limit": 250e-9,
+           "unit": "s", "margin": 102.6, "source": "src", "message": "", "subject": "SDA U2"}
+    old = _result({}, checks=[chk])
+    new = _result({}, checks=[dict(chk, value=23.4e-6, margin=92.6)])
+    changes = compare(old, new)
+    assert not changes.margin_changes and changes.empty
+    assert "> +999 % → > +999 %" not in changes.format_text()
+    # the same below the range: -1500 % -> -1200 % both read "< -999 %" (the status,
+    # fail, stays)
+    low = dict(chk, status="fail", margin=-15.0)
+    assert not compare(_result({}, status="fail", checks=[low]),
+                       _result({}, status="fail", checks=[dict(low, margin=-12.0)])
+                       ).margin_changes
+    # one side inside the range reads as a real change and is listed
+    (m,) = compare(old, _result({}, checks=[dict(chk, value=2.5e-6, margin=9.0)])
+                   ).margin_changes
+    assert "margin > +999 % → +900 %" in m.format(), m.format()
+    # derived: 9.99 rounds to +999 %, shown as a number; 12.0 is beyond: listed
+    (m,) = compare(_result({}, checks=[dict(chk, margin=9.99)]),
+                   _result({}, checks=[dict(chk, margin=12.0)])).margin_changes
+    assert "margin +999 % → > +999 %" in m.format(), m.format()
+
+
 def test_parse_change_threshold():
     assert parse_change_threshold("5%") == pytest.approx(0.05)
     assert parse_change_threshold("2.5 %") == pytest.approx(0.025)
