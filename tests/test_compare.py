@@ -894,12 +894,38 @@ def test_swap_help_has_an_example(capsys):
     (186.0, -1.0, "(> +999 %)"),         # from a negative figure a factor means nothing
     (-186.0, 1.0, "(< -999 %)"),         # as percent_text shows margins
     (1e-7, 1.0, "(< 0.001 %)"),
+    # at most one decimal of a percent, the finest step figures of three significant
+    # digits show (common practice, no source); once "+0.0112 %", "-9.42 %", "+0.811 %"
+    (0.000112, 1.0, "(+0.01 %)"),        # nearer to zero: one significant digit
+    (-0.000356, 1.0, "(-0.04 %)"),
+    (0.00811, 1.0, "(+0.8 %)"),
+    (-0.0942, 1.0, "(-9.4 %)"),
+    (-5.4, 1.0, "(-540 %)"),             # whole percents from 100 % on
+    (0.9996, 1.0, "(+100 %)"),
     (math.inf, 0.0, "(from zero)"),
     (None, 1.0, ""),
 ])
 def test_a_change_reads_without_an_exponent(rel, old, text):
     # common practice, no source: an engineer reads ×187, not +1.86e+04 %
     assert format_change(rel, old) == text
+
+
+def test_swap_detail_numbers_carry_three_significant_digits(capsys, monkeypatch):
+    # a walk at 80 columns read "+0.0112 %" and "0.07821" in the table of every figure:
+    # figures carry three significant digits as format_si gives them, unitless ratios
+    # too, and a change at most one decimal of a percent (format_change)
+    monkeypatch.setenv("COLUMNS", "80")
+    main(["swap", str(_DEMO), "U4=io-expander-i2c", "--detail"])
+    out = capsys.readouterr().out
+    head = out.index("figure  ")
+    table = out[head:out.index("Part values behind", head)]
+    for number in re.findall(r"\d+\.\d+", table):
+        digits = number.replace(".", "").lstrip("0")
+        assert len(digits) <= 3, number
+    # a change: at most one decimal, or one significant digit nearer to zero
+    for whole, frac in re.findall(r"[+-](\d+)\.(\d+) %", table):
+        assert len(frac) <= 1 or (whole == "0" and len(frac.lstrip("0")) == 1), frac
+    assert re.search(r"Delay / edge time +0\.0779 ", table)
 
 
 def test_a_figure_change_shows_a_large_rise_as_a_factor():

@@ -100,10 +100,13 @@ def figure_value_text(name: str, value, unit: str) -> str:
 
 
 def format_change(rel: float | None, old=None) -> str:
-    """A relative change as text, never in exponent form: ``(+12.5 %)`` (three significant
-    digits) up to ±999 %; a positive figure that grew further by its factor, ``(×187)``;
-    other changes beyond that as :func:`pinlib.model.result.percent_text` shows margins,
-    ``(> +999 %)`` / ``(< -999 %)``; one nearer to zero than 0.001 % as it shows them too
+    """A relative change as text, never in exponent form: ``(+12.5 %)``, ``(-0.8 %)``,
+    ``(-540 %)`` (at most three significant digits and one decimal, the finest step the
+    figures beside it show at three significant digits; nearer to zero than 0.05 % one
+    significant digit, ``(+0.01 %)``) up to ±999 %; a positive figure that grew further
+    by its factor, ``(×187)``; other changes beyond that as
+    :func:`pinlib.model.result.percent_text` shows margins, ``(> +999 %)`` /
+    ``(< -999 %)``; one nearer to zero than 0.001 % as it shows them too
     (:func:`pinlib.model.result.tiny_percent_text`), ``(< 0.001 %)`` / ``(> -0.001 %)``;
     ``(from zero)``; empty for none.
 
@@ -118,11 +121,22 @@ def format_change(rel: float | None, old=None) -> str:
     if tiny:
         return f"({tiny})"
     if abs(pct) < MARGIN_SHOWN + 0.5:
-        return f"({pct:+.3g} %)"
+        return f"({_percent_change(pct)} %)"
     if pct > 0 and _is_number(old) and old > 0:
         factor = 1.0 + rel
         return f"(×{factor:.3g})" if factor < 100 else f"(×{factor:,.0f})"
     return f"(> +{MARGIN_SHOWN} %)" if pct > 0 else f"(< -{MARGIN_SHOWN} %)"
+
+
+def _percent_change(pct: float) -> str:
+    """A change in percent, signed, for :func:`format_change`: one decimal below 100 %
+    (``+12.5``, ``-9.4``, ``+50``), whole from 100 % on (``-540``), one significant digit
+    where one decimal would read 0 (``+0.01``)."""
+    if round(abs(pct), 1) == 0:
+        return f"{pct:+.1g}"
+    if round(abs(pct), 1) >= 100:
+        return f"{pct:+.0f}"
+    return f"{pct:+.1f}".removesuffix(".0")
 
 
 @value_class
