@@ -928,6 +928,23 @@ def test_swap_detail_numbers_carry_three_significant_digits(capsys, monkeypatch)
     assert re.search(r"Delay / edge time +0\.0779 ", table)
 
 
+def test_swap_counts_one_figure_within_the_threshold_in_the_singular():
+    # "(1 figures within the threshold" read as a slip: one figure, any other count plural
+    from types import SimpleNamespace
+
+    from pinlib.cli.commands.swap import _text
+
+    old = _result({"a": (100.0, "Ω"), "b": (100.0, "Ω")})  # invented figures
+    new = _result({"a": (101.0, "Ω"), "b": (200.0, "Ω")})
+    design = SimpleNamespace(title="t", path="t.toml")
+    status = SimpleNamespace(status="pass")
+    lines = _text(design, [], figure_rows(old, new), status, status, compare(old, new))
+    assert "(1 figure within the threshold; every figure before and after: --detail)" \
+        in lines
+    lines = _text(design, [], figure_rows(old, old), status, status, compare(old, old))
+    assert any(ln.startswith("(2 figures within the threshold") for ln in lines)
+
+
 def test_a_figure_change_shows_a_large_rise_as_a_factor():
     c = FigureChange("sensors/main-3v3", "rise_time", "s", 1e-9, 187e-9, 186.0, "moved")
     assert c.format().endswith("(×187)") and "e+" not in c.format()
