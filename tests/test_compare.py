@@ -894,13 +894,14 @@ def test_swap_help_has_an_example(capsys):
     (186.0, -1.0, "(> +999 %)"),         # from a negative figure a factor means nothing
     (-186.0, 1.0, "(< -999 %)"),         # as percent_text shows margins
     (1e-7, 1.0, "(< 0.001 %)"),
-    # at most one decimal of a percent, the finest step figures of three significant
-    # digits show (common practice, no source); once "+0.0112 %", "-9.42 %", "+0.811 %"
-    (0.000112, 1.0, "(+0.01 %)"),        # nearer to zero: one significant digit
+    # three significant digits from 1 % on, one below (common practice, no source);
+    # once "+0.0112 %" and "+0.811 %"
+    (0.000112, 1.0, "(+0.01 %)"),        # under 1 %: one significant digit
     (-0.000356, 1.0, "(-0.04 %)"),
     (0.00811, 1.0, "(+0.8 %)"),
-    (-0.0942, 1.0, "(-9.4 %)"),
-    (-5.4, 1.0, "(-540 %)"),             # whole percents from 100 % on
+    (-0.0942, 1.0, "(-9.42 %)"),
+    (0.0504, 1.0, "(+5.04 %)"),          # just past a 5 % threshold: not "+5 %"
+    (-5.4, 1.0, "(-540 %)"),
     (0.9996, 1.0, "(+100 %)"),
     (math.inf, 0.0, "(from zero)"),
     (None, 1.0, ""),
@@ -922,9 +923,9 @@ def test_swap_detail_numbers_carry_three_significant_digits(capsys, monkeypatch)
     for number in re.findall(r"\d+\.\d+", table):
         digits = number.replace(".", "").lstrip("0")
         assert len(digits) <= 3, number
-    # a change: at most one decimal, or one significant digit nearer to zero
+    # a change: three significant digits, one under 1 %
     for whole, frac in re.findall(r"[+-](\d+)\.(\d+) %", table):
-        assert len(frac) <= 1 or (whole == "0" and len(frac.lstrip("0")) == 1), frac
+        assert len((whole + frac).lstrip("0")) <= (3 if whole != "0" else 1), whole + frac
     assert re.search(r"Delay / edge time +0\.0779 ", table)
 
 

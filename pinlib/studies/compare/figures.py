@@ -100,10 +100,9 @@ def figure_value_text(name: str, value, unit: str) -> str:
 
 
 def format_change(rel: float | None, old=None) -> str:
-    """A relative change as text, never in exponent form: ``(+12.5 %)``, ``(-0.8 %)``,
-    ``(-540 %)`` (at most three significant digits and one decimal, the finest step the
-    figures beside it show at three significant digits; nearer to zero than 0.05 % one
-    significant digit, ``(+0.01 %)``) up to ±999 %; a positive figure that grew further
+    """A relative change as text, never in exponent form: ``(+12.5 %)``, ``(-540 %)``
+    (three significant digits), under 1 % one (``(-0.8 %)``, ``(+0.01 %)``) up to
+    ±999 %; a positive figure that grew further
     by its factor, ``(×187)``; other changes beyond that as
     :func:`pinlib.model.result.percent_text` shows margins, ``(> +999 %)`` /
     ``(< -999 %)``; one nearer to zero than 0.001 % as it shows them too
@@ -129,14 +128,10 @@ def format_change(rel: float | None, old=None) -> str:
 
 
 def _percent_change(pct: float) -> str:
-    """A change in percent, signed, for :func:`format_change`: one decimal below 100 %
-    (``+12.5``, ``-9.4``, ``+50``), whole from 100 % on (``-540``), one significant digit
-    where one decimal would read 0 (``+0.01``)."""
-    if round(abs(pct), 1) == 0:
-        return f"{pct:+.1g}"
-    if round(abs(pct), 1) >= 100:
-        return f"{pct:+.0f}"
-    return f"{pct:+.1f}".removesuffix(".0")
+    """A change in percent, signed, for :func:`format_change`: three significant digits
+    from 1 % on (``+12.5``, ``-9.42``, ``+5.04``, ``-540``: a change just past a
+    threshold of 5 % must not read ``+5``), one below (``+0.8``, ``+0.01``)."""
+    return f"{pct:+.3g}" if abs(pct) >= 1.0 else f"{pct:+.1g}"
 
 
 @value_class
