@@ -306,7 +306,7 @@ def test_cli_names_a_team_part_left_out_for_its_problem(tmp_path, capsys, monkey
                  "--library", str(team)]) == 0
     out, err = capsys.readouterr()
     assert "eeprom-typo" not in out
-    assert "1 problem(s) in the library (run 'pinlib parts check')" in err
+    assert "1 problem in the library (run 'pinlib parts check')" in err
     assert f"{bad}:7, field 'pins.sda.c_in'" in err
 
 

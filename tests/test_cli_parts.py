@@ -179,7 +179,8 @@ def test_list_warns_about_problems(lib, capsys):
     (team / "broken.toml").write_text('format = "pinlib.part/1"\nid = "broken"\n',
                                       encoding="utf-8")
     code, out, err = run(capsys, "parts", "list", "--library", "team")
-    assert code == 0 and "2 problem(s)" in err and "pinlib parts check" in err  # title, category
+    # title, category
+    assert code == 0 and "2 problems in the library" in err and "pinlib parts check" in err
 
 
 # --- show --------------------------------------------------------------------------------

@@ -556,6 +556,34 @@ def test_a_margin_in_seconds_is_listed_and_shown_in_its_unit():
     assert "old_margin_unit" not in r.to_json()
 
 
+def test_a_margin_beyond_the_shown_range_on_both_sides_did_not_move():
+    # invented check values. A 20 kHz bus's setup time: 25.9 µs against 250 ns, then
+    # 23.4 µs with a slower part (derived: margins +102.6 and +92.6, 10 % of themselves).
+    # Both read "> +999 %": a line "margin > +999 % → > +999 %" told the reader nothing
+    # moved, so it is not listed (the setup-margin figure, in µs, says by how much)
+    chk = {"id": "setup-time", "status": "pass", "value": 25.9e-6, "limit": 250e-9,
+           "unit": "s", "margin": 102.6, "source": "src", "message": "", "subject": "SDA U2"}
+    old = _result({}, checks=[chk])
+    new = _result({}, checks=[dict(chk, value=23.4e-6, margin=92.6)])
+    changes = compare(old, new)
+    assert not changes.margin_changes and changes.empty
+    assert "> +999 % → > +999 %" not in changes.format_text()
+    # the same below the range: -1500 % -> -1200 % both read "< -999 %" (the status,
+    # fail, stays)
+    low = dict(chk, status="fail", margin=-15.0)
+    assert not compare(_result({}, status="fail", checks=[low]),
+                       _result({}, status="fail", checks=[dict(low, margin=-12.0)])
+                       ).margin_changes
+    # one side inside the range reads as a real change and is listed
+    (m,) = compare(old, _result({}, checks=[dict(chk, value=2.5e-6, margin=9.0)])
+                   ).margin_changes
+    assert "margin > +999 % → +900 %" in m.format(), m.format()
+    # derived: 9.99 rounds to +999 %, shown as a number; 12.0 is beyond: listed
+    (m,) = compare(_result({}, checks=[dict(chk, margin=9.99)]),
+                   _result({}, checks=[dict(chk, margin=12.0)])).margin_changes
+    assert "margin +999 % → > +999 %" in m.format(), m.format()
+
+
 def test_parse_change_threshold():
     assert parse_change_threshold("5%") == pytest.approx(0.05)
     assert parse_change_threshold("2.5 %") == pytest.approx(0.025)
@@ -866,12 +894,56 @@ def test_swap_help_has_an_example(capsys):
     (186.0, -1.0, "(> +999 %)"),         # from a negative figure a factor means nothing
     (-186.0, 1.0, "(< -999 %)"),         # as percent_text shows margins
     (1e-7, 1.0, "(< 0.001 %)"),
+    # three significant digits from 1 % on, one below (common practice, no source);
+    # once "+0.0112 %" and "+0.811 %"
+    (0.000112, 1.0, "(+0.01 %)"),        # under 1 %: one significant digit
+    (-0.000356, 1.0, "(-0.04 %)"),
+    (0.00811, 1.0, "(+0.8 %)"),
+    (-0.0942, 1.0, "(-9.42 %)"),
+    (0.0504, 1.0, "(+5.04 %)"),          # just past a 5 % threshold: not "+5 %"
+    (-5.4, 1.0, "(-540 %)"),
+    (0.9996, 1.0, "(+100 %)"),
     (math.inf, 0.0, "(from zero)"),
     (None, 1.0, ""),
 ])
 def test_a_change_reads_without_an_exponent(rel, old, text):
     # common practice, no source: an engineer reads ×187, not +1.86e+04 %
     assert format_change(rel, old) == text
+
+
+def test_swap_detail_numbers_carry_three_significant_digits(capsys, monkeypatch):
+    # a walk at 80 columns read "+0.0112 %" and "0.07821" in the table of every figure:
+    # figures carry three significant digits as format_si gives them, unitless ratios
+    # too, and a change at most one decimal of a percent (format_change)
+    monkeypatch.setenv("COLUMNS", "80")
+    main(["swap", str(_DEMO), "U4=io-expander-i2c", "--detail"])
+    out = capsys.readouterr().out
+    head = out.index("figure  ")
+    table = out[head:out.index("Part values behind", head)]
+    for number in re.findall(r"\d+\.\d+", table):
+        digits = number.replace(".", "").lstrip("0")
+        assert len(digits) <= 3, number
+    # a change: three significant digits, one under 1 %
+    for whole, frac in re.findall(r"[+-](\d+)\.(\d+) %", table):
+        assert len((whole + frac).lstrip("0")) <= (3 if whole != "0" else 1), whole + frac
+    assert re.search(r"Delay / edge time +0\.0779 ", table)
+
+
+def test_swap_counts_one_figure_within_the_threshold_in_the_singular():
+    # "(1 figures within the threshold" read as a slip: one figure, any other count plural
+    from types import SimpleNamespace
+
+    from pinlib.cli.commands.swap import _text
+
+    old = _result({"a": (100.0, "Ω"), "b": (100.0, "Ω")})  # invented figures
+    new = _result({"a": (101.0, "Ω"), "b": (200.0, "Ω")})
+    design = SimpleNamespace(title="t", path="t.toml")
+    status = SimpleNamespace(status="pass")
+    lines = _text(design, [], figure_rows(old, new), status, status, compare(old, new))
+    assert "(1 figure within the threshold; every figure before and after: --detail)" \
+        in lines
+    lines = _text(design, [], figure_rows(old, old), status, status, compare(old, old))
+    assert any(ln.startswith("(2 figures within the threshold") for ln in lines)
 
 
 def test_a_figure_change_shows_a_large_rise_as_a_factor():

@@ -59,7 +59,7 @@ BAD = {
                                       "").replace("PART", "t-target"),
                       "bus[0].devices", 9, ["a bus needs a controller", 'role = "controller"']),
     "one-sided-bridge": (SEGMENTS, "bus[0].segment[0].devices[1].ref", 13,
-                         ["bridging part must appear in two segments", "'Q1'", "side(s): b"]),
+                         ["bridging part must appear in two segments", "'Q1'", "found side: b"]),
     "dimension": (ONE_BUS.replace('supply = "3.3 V"', 'supply = "3.3 pF"').replace(
         "PART", "t-target"), "bus[0].supply", 8,
         ["a value in F where a voltage belongs", "'3.3 pF'", "3.3 V"]),

@@ -481,14 +481,14 @@ def _(env):
                                     field="bus[0].devices[1].part"), env).message
 
 
-@case("MORE_PROBLEMS", M.MORE_PROBLEMS.format(n=1))
+@case("MORE_PROBLEMS", "1 more problem: 'pinlib parts check' lists them")
 def _(env):
     env.write("team/broken.toml", _BROKEN.replace('c_in = "8 pF"', "c_in = 9"))
     lib = load_library([env.tmp / "team"], env=False, lazy=True)
     return _fails(lambda e: lib.get("broken"), env).message
 
 
-@case("UNREAD_FILES", lambda: M.UNREAD_FILES.format(n=1, first="").rstrip())
+@case("UNREAD_FILES", "1 library file could not be read, the first:")
 def _(env):
     env.write("team/unread.toml", "format = \n")
     lib = load_library([env.tmp / "team"], env=False, lazy=True)
@@ -510,7 +510,7 @@ def _(env):  # a bus table has 19 fields: ten are listed, the closest named apar
                   env).message
 
 
-@case("FURTHER_PROBLEMS", M.FURTHER_PROBLEMS.format(n=2))
+@case("FURTHER_PROBLEMS", "pinlib: and 2 more problems in the same file")
 def _(env):  # twelve invalid fields: the first, nine more listed, the count of the rest
     bad = "".join(f'\n[[bus]]\nid = "b{i}"\nprotocol = "i2c"\nsupply = true\n'
                   for i in range(12))
@@ -1078,7 +1078,7 @@ def _(env):
     return _placed(err, "id")
 
 
-@case("TEXT_TOO_SHORT", M.TEXT_TOO_SHORT.format(n=1))
+@case("TEXT_TOO_SHORT", "text shorter than 1 character")
 def _(env):
     err = _fails(lambda e: e.design(I2C_BUS.replace('ref = "U2"', 'ref = ""')), env)
     return _placed(err, "bus[0].devices[1].ref")
@@ -1496,7 +1496,8 @@ def _(env):
     return _fails(lambda e: e.design(I2C_BUS, swaps={"U99": "eeprom-i2c"}), env)
 
 
-@case("LIBRARY_HAS_PROBLEMS", M.LIBRARY_HAS_PROBLEMS.format(n=1))
+@case("LIBRARY_HAS_PROBLEMS", "1 problem in the library (run 'pinlib parts check'); "
+      "parts with problems are left out")
 def _(env):
     env.team("p")
     env.write("team/broken.toml", "this is not TOML\n")
@@ -2933,7 +2934,7 @@ T5 = [0.0, 1e-9, 2e-9, 3e-9, 4e-9]
 BUDGET = [("CIPO setup", "flight", 2e-9)]
 
 
-@case("ARRAY_DIMENSIONS", M.ARRAY_DIMENSIONS.format(ndim=2))
+@case("ARRAY_DIMENSIONS", "array with 2 dimensions")
 def _(env):
     return _fails(lambda e: _charts().edge_vs_load([[1e-12]], [1e-9]), env)
 
@@ -3579,6 +3580,19 @@ def test_every_message_has_its_case():
     names = [p.values[0] for p in CASES]
     assert len(names) == len(set(names)), "a message tested twice"
     assert sorted(names) == sorted(M.all_messages())
+
+
+def test_no_message_writes_a_plural_in_parentheses():
+    # "1 problem(s)" read as a form, not a sentence: a counted noun is singular for one,
+    # plural for any other count (plural_s), and a count that cannot reach the noun is
+    # worded without one
+    import re
+
+    for name in M.all_messages():
+        assert not re.search(r"\w\((s|es)\)", getattr(M, name)), name
+    from pinlib.core.labels import plural_s
+    assert [f"{n} problem{plural_s(n)}" for n in (0, 1, 2)] == [
+        "0 problems", "1 problem", "2 problems"]
 
 
 def test_converted_modules_write_no_message_of_their_own():

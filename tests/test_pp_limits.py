@@ -85,6 +85,30 @@ def test_supply_range_on_spi_and_gpio_buses():
         assert ok.status == "pass"
 
 
+def test_supply_range_source_is_worded_alike_on_every_bus(tmp_path):
+    # the demo's U1 (mcu-3v3) sits on I2C, SMBus and SPI buses and its rail is nearer its
+    # part's maximum on each: the SPI rows said "mcu-3v3 supply (typical of the class
+    # (common practice))", the I2C rows "mcu-3v3 supply.max (mcu-3v3.toml), generic: ...",
+    # for the same limit
+    demo = Path(__file__).parents[1] / "workbooks" / "designs" / "demo-board.toml"
+    res = check_design(load_design(demo))
+    rows = [(b.protocol, c) for b in res.buses for _, _, c in b.all_checks()
+            if c.id == "supply-range" and c.subject == "U1"]
+    assert {p for p, _ in rows} >= {"i2c", "spi"}
+    assert all(c.limit == pytest.approx(3.6) for _, c in rows)  # the class's supply.max
+    assert {c.source for _, c in rows} == {
+        "mcu-3v3 supply.max (mcu-3v3.toml), generic: typical of the class (common practice)"}
+    # a rail under the part's minimum names supply.min, on SPI as on I2C (invented
+    # design: a 3 V to 3.6 V part on a 1.8 V rail)
+    low = check_design(load_design(_spi_design(
+        tmp_path, "low rail", "1 MHz", "1.8 V", '{ ref = "U1", part = "mcu-3v3", '
+        'role = "controller" }', '{ ref = "U2", part = "nor-flash-spi" }')))
+    (u1,) = [c for c in low.bus("spi0").checks if c.id == "supply-range" and c.subject == "U1"]
+    assert u1.status == "fail" and u1.limit == pytest.approx(3.0)
+    assert u1.source == ("mcu-3v3 supply.min (mcu-3v3.toml), generic: typical of the class "
+                         "(common practice)")
+
+
 def test_supply_range_from_tables_equals_the_engine():
     from pinlib.engines import ppbatch, pptable
     from pinlib.engines.ppvariant import chosen_resistors, parameter_specs

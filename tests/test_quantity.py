@@ -14,6 +14,7 @@ from pinlib.core.quantity import (
     UNITS,
     Threshold,
     format_si,
+    format_value,
     likely_units,
     parse,
     parse_ratio,
@@ -348,6 +349,22 @@ def test_format_si_special_values():
     assert format_si(None, "V") == "—"
     assert format_si(True, "") == "yes"
     assert "inf" in format_si(float("inf"), "s")
+
+
+@pytest.mark.parametrize("value, text", [
+    # a unitless ratio carries three significant digits, as format_si gives every value
+    # with a unit (common practice, no source); once "0.07821", "0.8473"
+    (0.0782129, "0.0782"),   # invented: a delay-to-edge ratio
+    (0.8472979, "0.847"),    # derived: ln(0.7/0.3), the rise factor k
+    (-0.0348, "-0.0348"),    # invented: a far-end coupling coefficient
+    (2.0, "2"),
+    (12.0, "12"),
+    (1234.0, "1234"),        # a count of a thousand or more whole, never "1.23e+03"
+    (-25000.4, "-25000"),
+    (0.0, "0"),
+])
+def test_format_value_of_a_ratio(value, text):
+    assert format_value(value, "") == text
 
 
 # --- fuzz: any text gives a float or a UnitError, never another exception --------------

@@ -152,7 +152,8 @@ def test_detail_shows_every_check_and_each_figure_once(monkeypatch, capsys, demo
     flash = out.split("bus flash (SPI)")[1].split("bus display")[0]
     assert flash.count("distributed model: one lumped capacitance") == 1
     # every source once per bus, numbered
-    assert flash.count("mcu-3v3 supply (typical of the class (common practice))") == 1
+    assert flash.count("mcu-3v3 supply.max (mcu-3v3.toml), generic: typical of the class "
+                       "(common practice)") == 1
 
 
 def test_detail_keeps_units_labels_and_sources(monkeypatch, capsys):

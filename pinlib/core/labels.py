@@ -24,7 +24,7 @@ from typing import Any
 
 __all__ = ["FIGURES", "SHORT", "CHECKS", "figure_label", "short_label", "check_label",
            "path_label", "sampled_check_label", "note_label", "shown_figures", "humanize",
-           "and_list"]
+           "and_list", "plural_s"]
 
 #: Figure id -> label, in the order a table lists them (units come with the values).
 FIGURES: dict[str, str] = {
@@ -127,6 +127,13 @@ _WORDS = {
 
 #: The lines of an open-drain bus, as figure id suffixes.
 _LINES = ("sda", "scl")
+
+
+def plural_s(n) -> str:
+    """The ending of a noun counted ``n`` times: "" for one, "s" for any other count
+    (``f"{n} problem{plural_s(n)}"``: 1 problem, 0 problems, 3 problems); never
+    "problem(s)"."""
+    return "" if n == 1 else "s"
 
 
 def and_list(words, conjunction: str = "and") -> str:

@@ -106,10 +106,10 @@ OVERRIDES_LEFT_OUT = "team parts that override a built-in one: {ids}"
 PART_DOES_NOT_VALIDATE = "part '{part}' does not load: {problem}"
 # hints of PART_DOES_NOT_VALIDATE and UNKNOWN_PART
 NAMED_AT = "the part is named at {where}"
-MORE_PROBLEMS = "{n} more problem(s): 'pinlib parts check' lists them"
+MORE_PROBLEMS = "{n} more problem{s}: 'pinlib parts check' lists them"
 # after the further problems the command line lists with an error (pinlib/cli)
-FURTHER_PROBLEMS = "pinlib: and {n} more problem(s) in the same file"
-UNREAD_FILES = "{n} library file(s) could not be read, the first: {first}"
+FURTHER_PROBLEMS = "pinlib: and {n} more problem{s} in the same file"
+UNREAD_FILES = "{n} library file{s} could not be read, the first: {first}"
 EXTENDS_TOO_DEEP = "an extends chain deeper than {limit} levels"
 LIBRARY_IS_SYSTEM_FOLDER = "a library folder may not be a system folder ({real})"
 LIBRARY_TOO_DEEP = "the library folder nests deeper than {limit} folders"
@@ -128,7 +128,7 @@ NOT_ARRAY = "not an array"
 NOT_TEXT_OR_TABLE = "neither text nor a table"
 WRONG_KIND = "not a kind of value this field takes"
 TEXT_WRONG_FORM = "text not of the allowed form"
-TEXT_TOO_SHORT = "text shorter than {n} character(s)"
+TEXT_TOO_SHORT = "text shorter than {n} character{s}"
 TEXT_TOO_LONG = "text longer than {n} characters"
 # ... and what only a program using the records wrongly meets
 RECORD_FROZEN = "a {record} cannot be changed in place: make a changed copy, copy({name}=...)"
@@ -278,7 +278,7 @@ ROUTE_DEVICE_OF_OTHER_BUS = "the point names a device of another bus, not of thi
 # ---------------------------------------------------------------- pinlib/cli/commands/
 NO_FOLDER_FOR_NEW_PART = "no folder to write the new part into"
 PART_DOES_NOT_LOAD = "the part does not load"
-LIBRARY_HAS_PROBLEMS = ("{n} problem(s) in the library (run 'pinlib parts check'); parts "
+LIBRARY_HAS_PROBLEMS = ("{n} problem{s} in the library (run 'pinlib parts check'); parts "
                         "with problems are left out")
 FIRST_PROBLEM = "the first: {message}"
 INTERRUPTED = "interrupted (Ctrl-C): stopped"
@@ -382,11 +382,12 @@ UNKNOWN_LINE_METHOD = "unknown {kind} method"
 SHAPES_DO_NOT_BROADCAST = "parameters w, h/b, er, t have shapes that do not broadcast"
 UNKNOWN_LINE_KIND = "unknown line kind"
 # a ValidityWarning, not an error
-OUTSIDE_VALIDITY = ("{kind} method '{method}': {count} of {size} input(s) outside {range} "
-                    "(e.g. {quantity} = {first}); source: {source}")
+OUTSIDE_VALIDITY = ("{kind} method '{method}': {quantity} outside {range} in {count} of "
+                    "{size} (e.g. {quantity} = {first}); source: {source}")
 # a ValidityWarning, not an error: a method that holds at one value only (t = 0)
-OFF_VALIDITY_POINT = ("{kind} method '{method}' holds only at {range}: {count} of {size} "
-                      "input(s) differ (e.g. {quantity} = {first}); source: {source}")
+OFF_VALIDITY_POINT = ("{kind} method '{method}' holds only at {range}: {quantity} "
+                      "differs in {count} of {size} (e.g. {quantity} = {first}); "
+                      "source: {source}")
 
 # pinlib/physics/driver.py
 NOT_NUMBERS = "not a number or an array of numbers"
@@ -520,7 +521,7 @@ NO_SUCH_SEGMENT = "no segment of that id on the bus"
 BUDGET_DOES_NOT_ADD_UP = "the timing budget terms do not add up to the engine's margin"
 
 # ---------------------------------------------------------------- pinlib/present/charts.py
-ARRAY_DIMENSIONS = "array with {ndim} dimension(s)"
+ARRAY_DIMENSIONS = "array with {ndim} dimension{s}"
 CANNOT_BE_DRAWN = "cannot be drawn"
 RP_BOUNDS_SHAPE = "rp_min and rp_max must be floats or arrays as long as cb"
 WINDOW_NOT_DRAWABLE = "no point of the window can be drawn on log axes"

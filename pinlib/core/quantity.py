@@ -557,7 +557,9 @@ def _threshold_hint(body: str) -> str | None:
 def format_value(value, unit: str) -> str:
     """A figure or check value as text: SI prefix and unit, ``yes``/``no``, text as is,
     ``∞``/``−∞`` for an unbounded number, ``—`` for none (or NaN).  A value without a
-    unit (a ratio, a count) takes no SI prefix: "847 m" reads badly."""
+    unit (a ratio, a count) takes no SI prefix ("847 m" reads badly) and carries the
+    three significant digits :func:`format_si` gives a value with one (``0.0782``,
+    ``0.847``); from a thousand on it is written whole (``1234``, never ``1.23e+03``)."""
     if value is None:
         return "—"
     if isinstance(value, bool):
@@ -571,7 +573,7 @@ def format_value(value, unit: str) -> str:
     if not math.isfinite(x):
         return "∞" if x > 0 else ("−∞" if x < 0 else "—")
     if not unit:
-        return f"{x:.4g}"
+        return _sig(x, 3) if abs(x) < 1000 else f"{x:.0f}"
     return format_si(x, unit)
 
 

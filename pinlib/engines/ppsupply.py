@@ -8,6 +8,7 @@ them at each board's rails without importing the engine's entry point.
 
 from __future__ import annotations
 
+from pinlib.engines.opendrain.inputs import supply_source
 from pinlib.engines.opendrain.rules import supply_range_check
 from pinlib.engines.pushline import device_supply
 from pinlib.model.design import Bus
@@ -18,8 +19,10 @@ __all__ = ["supply_rows", "supply_checks"]
 
 def supply_rows(bus: Bus) -> list[tuple]:
     """Each device of the bus whose part states a supply range:
-    ``(device, rail, min, max, source)``, the rail the device runs from (its own, else
-    the bus's) and its part's range on that side. [V]"""
+    ``(device, rail, min, max, source_of)``, the rail the device runs from (its own, else
+    the bus's), its part's range on that side, and ``source_of(low)`` the check's source
+    at the low or the high end (:func:`pinlib.engines.opendrain.inputs.supply_source`, as
+    the open-drain engine words it). [V]"""
     out, seen = [], set()
     for d in bus.devices:
         if d.ref in seen:
@@ -28,9 +31,8 @@ def supply_rows(bus: Bus) -> list[tuple]:
         sup = d.part.supply_for(d.part_side)
         if sup is None:
             continue
-        why = sup.min.source or d.part.provenance.source or "part file"
         out.append((d, device_supply(d, bus), float(sup.min.value), float(sup.max.value),
-                    f"{d.part_id} supply ({why})"))
+                    lambda low, d=d, sup=sup: supply_source(d, sup, low)))
     return out
 
 
@@ -41,6 +43,6 @@ def supply_checks(bus: Bus) -> list[Check]:
     :func:`pinlib.engines.pushpull.evaluate_bus` takes. [V]"""
     out = []
     for d, v, lo, hi, src in supply_rows(bus):
-        chk = supply_range_check(d.ref, v, v, lo, hi, lambda _low, src=src: src, ends=False)
+        chk = supply_range_check(d.ref, v, v, lo, hi, src, ends=False)
         out.append(chk)
     return out

@@ -29,6 +29,7 @@ __all__ = [
     "percent_text",
     "tiny_percent_text",
     "MARGIN_SHOWN",
+    "beyond_shown",
     "PERCENT_TINY",
     "figure_text",
     "rule_of_thumb",
@@ -196,6 +197,20 @@ def tiny_percent_text(pct: float) -> str | None:
     return f"< {PERCENT_TINY:g} %" if pct > 0 else f"> -{PERCENT_TINY:g} %"
 
 
+def beyond_shown(m, decimals: int = 0) -> int:
+    """Where a relative margin (a ratio) reads beyond ±:data:`MARGIN_SHOWN` % with
+    ``decimals`` decimals: 1 for ``> +999 %``, -1 for ``< -999 %``, 0 for a margin
+    written as a number (or None, or not finite).  The one rule of :func:`percent_text`
+    and of the change lists, where two margins beyond the range on the same side did not
+    move for a reader (:func:`pinlib.studies.compare.changes._margin_moved`)."""
+    if m is None or not math.isfinite(float(m)):
+        return 0
+    pct = float(m) * 100
+    if abs(round(pct, decimals)) <= MARGIN_SHOWN:
+        return 0
+    return -1 if pct < 0 else 1
+
+
 def percent_text(m, decimals: int = 0) -> str:
     """A relative margin (a ratio) as a signed percentage with ``decimals`` decimals:
     ``+12 %``; beyond ±:data:`MARGIN_SHOWN` % ``> +999 %`` / ``< -999 %``; "—" where
@@ -208,8 +223,9 @@ def percent_text(m, decimals: int = 0) -> str:
     if not math.isfinite(m):
         return "—"
     pct = m * 100
-    if abs(round(pct, decimals)) > MARGIN_SHOWN:
-        return f"< -{MARGIN_SHOWN} %" if pct < 0 else f"> +{MARGIN_SHOWN} %"
+    side = beyond_shown(m, decimals)
+    if side:
+        return f"< -{MARGIN_SHOWN} %" if side < 0 else f"> +{MARGIN_SHOWN} %"
     if decimals == 0 and pct != 0 and abs(pct) < 0.5:
         return tiny_percent_text(pct) or f"{pct:+.1g} %"
     return f"{pct:+.{decimals}f} %"

@@ -8,6 +8,7 @@ import sys
 from pinlib.cli import SUMMARIES
 from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
+from pinlib.core.labels import plural_s
 
 __all__ = ["add_parser", "run"]
 
@@ -103,8 +104,9 @@ def run(args) -> int:
     if problems:
         from pinlib.present.terminal import fitted
 
-        print(fitted("pinlib: warning: " + M.LIBRARY_HAS_PROBLEMS.format(n=len(problems))
-                     + "; " + M.FIRST_PROBLEM.format(message=problems[0].message),
+        warning = M.LIBRARY_HAS_PROBLEMS.format(n=len(problems), s=plural_s(len(problems)))
+        print(fitted("pinlib: warning: " + warning + "; "
+                     + M.FIRST_PROBLEM.format(message=problems[0].message),
                      sys.stderr), file=sys.stderr)
     if args.json:
         from pinlib.present.terminal import write_json

@@ -386,9 +386,11 @@ def _text(design, swap_rows, rows, before, after, changes, detail=False) -> list
             out += ["  " + line for line in pc.lines()]
     out += [f"Note: {n}" for n in changes.notes]
     if not detail:
+        from pinlib.core.labels import plural_s
+
         unmoved = sum(1 for r in rows if not r.moved)
-        out.append(f"({unmoved} figures within the threshold; every figure before and "
-                   "after: --detail)")
+        out.append(f"({unmoved} figure{plural_s(unmoved)} within the threshold; every figure "
+                   "before and after: --detail)")
     out.append("")
     return out
 

@@ -96,6 +96,19 @@ def value_source(dev: Device, path: str, value) -> str:
     return f"{where} ({': '.join(bits)})" if bits else where
 
 
+def supply_source(dev: Device, sup, low: bool) -> str:
+    """The ``source`` of a device's ``supply-range`` check, one text for every engine
+    (open-drain and push-pull buses alike): the end of its part's supply range ``sup``
+    the rail is nearer to, ``supply.min`` where ``low`` else ``supply.max`` (a bridging
+    part's side ``sides.a.supply.min``), and where that value comes from
+    (:func:`value_source`): ``'mcu-3v3 supply.max (mcu-3v3.toml), generic: ...'``."""
+    side = next((name for name, s in dev.part.sides.items()
+                 if s.supply is sup and sup is not dev.part.supply), None)
+    where = f"sides.{side}.supply" if side else "supply"
+    return (value_source(dev, f"{where}.min", sup.min) if low
+            else value_source(dev, f"{where}.max", sup.max))
+
+
 @value_class
 class _Driver:
     """A pin that pulls a line low, with its guaranteed low level per corner."""

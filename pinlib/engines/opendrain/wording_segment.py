@@ -17,6 +17,7 @@ from pinlib.engines.opendrain.inputs import (
     _default,
     _f,
     _offset_side,
+    supply_source,
     value_source,
 )
 from pinlib.engines.opendrain.rules import (
@@ -207,12 +208,10 @@ def _domains(w: Words, taps: list) -> None:
         k, _ = row_corner(bc)
         t = next(t for t in taps if t.label == bc.names[k])
         sup = t.dev.part.supply_for(t.dev.side)
-        where = "supply" if sup is t.dev.part.supply else f"sides.{t.dev.side}.supply"
         low = bool(bc.basis[k].reshape(-1)[0])
-        src = (value_source(t.dev, f"{where}.min", sup.min) if low
-               else value_source(t.dev, f"{where}.max", sup.max))
-        chk = make(bc, src, supply_range_text(t.label, low, float(bc.value[0]),
-                                              float(sup.min.value), float(sup.max.value)),
+        chk = make(bc, supply_source(t.dev, sup, low),
+                   supply_range_text(t.label, low, float(bc.value[0]), float(sup.min.value),
+                                     float(sup.max.value)),
                    subject=t.label)
         if chk.status == "fail":
             chk.fix = ("give the device its own rail (supply = \"...\" on the device) or choose "

@@ -5,6 +5,7 @@ from __future__ import annotations
 
 from pinlib.core import messages as M
 from pinlib.core import protocols
+from pinlib.core.labels import plural_s
 from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_of
@@ -127,7 +128,7 @@ def _check_bridges(segments: list[Segment], err) -> None:
         if sorted(sides) != ["a", "b"]:
             loc = next(d.loc for s in segments for d in s.devices if d.ref == ref)
             raise err(M.BRIDGE_IN_TWO_SEGMENTS, loc + ("ref",), value=ref,
-                      hint=f"found side(s): {', '.join(sides)}")
+                      hint=f"found side{plural_s(len(sides))}: {', '.join(sides)}")
 
 
 def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:

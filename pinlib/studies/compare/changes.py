@@ -13,7 +13,7 @@ from pinlib.core.errors import InputError
 from pinlib.core.labels import check_label, figure_label, shown_figures
 from pinlib.core.quantity import Threshold, format_si, format_threshold
 from pinlib.core.valueclass import value_class
-from pinlib.model.result import signed_margin_text
+from pinlib.model.result import beyond_shown, signed_margin_text
 from pinlib.studies.compare.figures import (
     DEFAULT_THRESHOLD,
     _checks,
@@ -144,7 +144,9 @@ def _margin_moved(o: dict, n: dict, threshold: float) -> bool:
     that fell to +613 % moved 8 points, but only 1.3 % of itself: not listed).  A margin
     in a unit (``margin_unit``: volts, seconds) has no points: it moved when apart by
     more than ``threshold`` of itself, as a figure; one that changed its kind (a
-    requirement of 0 that a part now records) moved."""
+    requirement of 0 that a part now records) moved.  Two relative margins both beyond
+    the range the text shows, on the same side (``> +999 %`` both, :func:`beyond_shown`),
+    did not move for a reader: not listed (the figures beside them say by how much)."""
     a, b = o.get("margin"), n.get("margin")
     if not (_is_number(a) and _is_number(b) and math.isfinite(a) and math.isfinite(b)):
         return False
@@ -153,6 +155,8 @@ def _margin_moved(o: dict, n: dict, threshold: float) -> bool:
         return True
     if unit is not None:
         return abs(b - a) > threshold * abs(a)
+    if beyond_shown(a) and beyond_shown(a) == beyond_shown(b):
+        return False
     return abs(b - a) > threshold and abs(b - a) > threshold * abs(a)
 
 

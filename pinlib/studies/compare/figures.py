@@ -100,10 +100,12 @@ def figure_value_text(name: str, value, unit: str) -> str:
 
 
 def format_change(rel: float | None, old=None) -> str:
-    """A relative change as text, never in exponent form: ``(+12.5 %)`` (three significant
-    digits) up to ±999 %; a positive figure that grew further by its factor, ``(×187)``;
-    other changes beyond that as :func:`pinlib.model.result.percent_text` shows margins,
-    ``(> +999 %)`` / ``(< -999 %)``; one nearer to zero than 0.001 % as it shows them too
+    """A relative change as text, never in exponent form: ``(+12.5 %)``, ``(-540 %)``
+    (three significant digits), under 1 % one (``(-0.8 %)``, ``(+0.01 %)``) up to
+    ±999 %; a positive figure that grew further
+    by its factor, ``(×187)``; other changes beyond that as
+    :func:`pinlib.model.result.percent_text` shows margins, ``(> +999 %)`` /
+    ``(< -999 %)``; one nearer to zero than 0.001 % as it shows them too
     (:func:`pinlib.model.result.tiny_percent_text`), ``(< 0.001 %)`` / ``(> -0.001 %)``;
     ``(from zero)``; empty for none.
 
@@ -118,11 +120,18 @@ def format_change(rel: float | None, old=None) -> str:
     if tiny:
         return f"({tiny})"
     if abs(pct) < MARGIN_SHOWN + 0.5:
-        return f"({pct:+.3g} %)"
+        return f"({_percent_change(pct)} %)"
     if pct > 0 and _is_number(old) and old > 0:
         factor = 1.0 + rel
         return f"(×{factor:.3g})" if factor < 100 else f"(×{factor:,.0f})"
     return f"(> +{MARGIN_SHOWN} %)" if pct > 0 else f"(< -{MARGIN_SHOWN} %)"
+
+
+def _percent_change(pct: float) -> str:
+    """A change in percent, signed, for :func:`format_change`: three significant digits
+    from 1 % on (``+12.5``, ``-9.42``, ``+5.04``, ``-540``: a change just past a
+    threshold of 5 % must not read ``+5``), one below (``+0.8``, ``+0.01``)."""
+    return f"{pct:+.3g}" if abs(pct) >= 1.0 else f"{pct:+.1g}"
 
 
 @value_class
