@@ -32,10 +32,11 @@ LEVEL_ABS = 1e-3
 Z0 = 60.0
 
 
-def _analysis(tmp_path, line: str):
+def _analysis(tmp_path, line: str, more: str = ""):
     """The engine's analysis of an irq line (``line``: the body of ``[bus.lines.irq]``)
     from the sink U2 (pp-periph's open-drain irq, VOL 0.4 V at 4 mA, 5 pF, 1 µA) to the
-    input U1 (pp-ctrl's irq, 5 pF, 1 µA): invented test parts."""
+    input U1 (pp-ctrl's irq, 5 pF, 1 µA), and the devices ``more`` lists: invented test
+    parts."""
     path = tmp_path / "d.toml"
     path.write_text(f"""format = "pinlib.design/1"
 title = "open-drain line against ngspice (invented)"
@@ -48,7 +49,7 @@ supply = "3.3 V"
 devices = [
   {{ ref = "U1", part = "pp-ctrl", role = "controller", pin = "irq" }},
   {{ ref = "U2", part = "pp-periph", pin = "irq" }},
-]
+{more}]
 [bus.lines.irq]
 {line}
 """, encoding="utf-8")
@@ -195,30 +196,11 @@ def test_strong_pull_up_on_a_stub_matches_ngspice_at_every_input(tmp_path):
     # line's inductance rings against the pins at about sqrt(L/C)/R of the swing, so a
     # lumped rise erred 4.3 % at U3 (36.99 ns against ngspice's 35.45); it is solved as
     # the line it is, each input at its own point
-    path = tmp_path / "d.toml"
-    path.write_text(f"""format = "pinlib.design/1"
-title = "a strong pull-up on a stub against ngspice (invented)"
-library = ["{DATA.as_posix()}"]
-
-[[bus]]
-id = "irq"
-protocol = "gpio"
-supply = "3.3 V"
-devices = [
-  {{ ref = "U1", part = "pp-ctrl", role = "controller", pin = "irq" }},
-  {{ ref = "U2", part = "pp-periph", pin = "irq" }},
-  {{ ref = "U3", part = "pp-ctrl", pin = "irq" }},
-]
-[bus.lines.irq]
-pullup = "673.2 Ω"
+    a = _analysis(tmp_path, """pullup = "673.2 Ω"
 route = [
-  {{from = "U2", to = "U1", length = "51.9 mm", capacitance = "1.69 pF/cm", delay = "61 ps/cm"}},
-  {{from = "U1", to = "U3", length = "10.2 mm", capacitance = "1.21 pF/cm", delay = "79.4 ps/cm"}},
-]
-""", encoding="utf-8")
-    d = load_design(path)
-    (li,) = line_inputs(d.bus("irq"), d)
-    a = li.analyse()
+  {from = "U2", to = "U1", length = "51.9 mm", capacitance = "1.69 pF/cm", delay = "61 ps/cm"},
+  {from = "U1", to = "U3", length = "10.2 mm", capacitance = "1.21 pF/cm", delay = "79.4 ps/cm"},
+]""", more='  { ref = "U3", part = "pp-ctrl", pin = "irq" },\n')
     case = a.cases["U2"]
     assert case.distributed
     net = case.net
