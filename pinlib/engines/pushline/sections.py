@@ -152,7 +152,7 @@ def needs_distributed(stretches: Sequence[Stretch], r_source: float, c_load: flo
     Returns
     -------
     bool
-        True when the line is long, or when ``L / (R^2 C) > limit`` (0.01) with
+        True when the line is long, or when ``L / (R^2 C) > limit`` (0.01 by default) with
         ``L = sum(Z0 td)`` and ``C`` the whole capacitance (:data:`LUMPED_RULE`);
         False for a line without any delay. [1]
 
