@@ -358,9 +358,14 @@ def _unit_tree(net: RouteNet, source: int, r_source: float, t_ramp: float,
     :func:`_record`'s."""
     c_total = float(sum(caps)) + sum(s.c for _, _, s in net.sections if s.td > 0)
     # a section far shorter than the ramp is its capacitance (wf.lump_short: its delay
-    # would set the step for no visible change)
+    # would set the step for no visible change); so is one shorter than the coarsest
+    # step the record affords (t_end / _MAX_STEPS: a pull-up's rise into a long cable
+    # with a few millimetres of trace at its ends), which would otherwise get one step
+    # and march the record one step a run (a GPIO line over 10 m took 7.5 s an edge)
+    lump_below = max(wf.LUMP_FRACTION * t_ramp, t_end / _MAX_STEPS)
     sections, caps, _ = wf.lump_short(
-        [(a, b, s.z0 if s.td > 0 else 1.0, s.td) for a, b, s in net.sections], caps, t_ramp)
+        [(a, b, s.z0 if s.td > 0 else 1.0, s.td) for a, b, s in net.sections], caps,
+        lump_below, fraction=1.0)
     delays = [td for *_, td in sections if td > 0]
     distributed = distributed and bool(delays)
     n_nodes = len(net.names)
