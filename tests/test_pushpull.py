@@ -369,6 +369,9 @@ def test_ringing_fails_on_the_clock_and_warns_on_data(lib):
     assert rs.status == "fail" and rs.value >= 1
     assert rc_.status == "warn" and rc_.value == rs.value
     assert rs.details["fall_recrossings"] >= 1
+    # the count reads as a count: "1 re-crossing", "2 re-crossings", never "(s)"
+    n = int(rs.value)
+    assert f"{n} re-crossing{'' if n == 1 else 's'} of " in rs.message
     # the clock fails against the receiver's own thresholds, and its source names them
     # (it cited only "common practice, no source", a rule of thumb's, beside a FAIL);
     # on data the re-crossing is a rule of thumb, and its source says so

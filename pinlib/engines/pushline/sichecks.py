@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from pinlib.core.labels import plural_s
 from pinlib.engines.pushline.analysis import LineAnalysis, _fmt
 from pinlib.engines.pushline.pins import Endpoint
 from pinlib.engines.pushline.rules import (
@@ -189,7 +190,7 @@ def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
         "ringing", status, total, 0, "", None, source,
         (f"no re-crossing of {levels} at {rx.label}"
          if total == 0 else
-         f"{total} re-crossing(s) of {levels} at "
+         f"{total} re-crossing{plural_s(total)} of {levels} at "
          f"{rx.label} after the first crossing"
          + (f" while {whose} drives" if whose else "") + f": risk of {what}") + corner,
         subject=rx.ref,
