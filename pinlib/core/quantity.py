@@ -254,19 +254,18 @@ def _bare_readings(x: float, unit: str, field: str | None) -> tuple[tuple[str, .
 
 
 def _bare_hint(x: float, unit: str, field: str | None = None) -> str:
-    """How to write a bare number with its unit.  A bare number between 0 and 1 for a
-    percentage is most likely a fraction (0.05 for 5 %): both readings are offered, the
-    fraction's first."""
+    """How to write a bare number (a TOML number) with its unit."""
+    return "write it as a string with its unit" + _readings(str(x), x, unit, field)
+
+
+def _readings(number: str, x: float, unit: str, field: str | None) -> str:
+    """The values a number written without its unit likely meant, after the advice to add
+    it: ``', e.g. "20 MHz" or "20 kHz"'``.  A number between 0 and 1 for a percentage is
+    most likely a fraction (0.05 for 5 %): both readings, the fraction's first."""
     if unit == "%" and 0 < x < 1:
-        return f"write it as a string with its unit: {_fraction_readings(str(x), x)}"
-    return f"write it as a string with its unit, e.g. {_with_unit(str(x), x, unit, field)}"
-
-
-def _fraction_readings(number: str, x: float) -> str:
-    """Both readings of a number between 0 and 1 written for a percentage, the
-    fraction's first."""
-    return f"\"{x * 100:.10g} %\" if {number} is a fraction, or \"{number} %\" if you " \
-           f"meant {number} percent"
+        return (f": \"{x * 100:.10g} %\" if {number} is a fraction, or \"{number} %\" if "
+                f"you meant {number} percent")
+    return f", e.g. {_with_unit(number, x, unit, field)}"
 
 
 def _parse_text(text: str, unit: str, field: str | None) -> float:
@@ -302,9 +301,7 @@ def _parse_text(text: str, unit: str, field: str | None) -> float:
     number, rest = float(m.group(1)), m.group(2)
     if not rest:
         raise _fail(text, unit, field, M.BARE_NUMBER,
-                    hint=f"add the unit: {_fraction_readings(m.group(1), number)}"
-                    if unit == "%" and 0 < number < 1 else
-                    f"add the unit, e.g. {_with_unit(m.group(1), number, unit, field)}")
+                    hint="add the unit" + _readings(m.group(1), number, unit, field))
     written = rest.strip()
     rest = rest.replace("·", "").replace(" ", "")
     got = _split_unit(rest)
@@ -326,6 +323,9 @@ _PREFIX_SHOWN = {1e12: "T", 1e9: "G", 1e6: "M", 1e3: "k", 1.0: "", 1e-3: "m", 1e
 _DECIMAL_COMMA = re.compile(r"^\s*[+-]?\d+,(?!\d{3}(?!\d))\d+(?![\d,])")
 
 
+#: A plus-minus sign as people type it: "±", "+/-" or "+-".
+_PM = r"±|\+/-|\+-"
+
 #: Fields of a design whose tolerance has a field of its own beside them.
 _TOLERANCE_FIELDS = ("pullup", "supply")
 
@@ -334,7 +334,7 @@ def _tolerance_hint(number: str, rest: str, unit: str, field: str | None) -> str
     """A value with its tolerance beside it, as a BOM writes it ("4.7 kΩ ±1%"): the value
     to write, and where the tolerance goes (a design's ``pullup_tolerance``,
     ``supply_tolerance``; a part states its limit, not a tolerance)."""
-    value = re.split(r"±|\+/-|\+-", rest, maxsplit=1)
+    value = re.split(_PM, rest, maxsplit=1)
     if len(value) < 2:
         return None
     got = _split_unit(value[0])
@@ -380,7 +380,7 @@ def _unit_hint(text: str, number: str, rest: str, unit: str,
     return "write " + " or ".join(f'"{s}"' for s in shown) + case
 
 
-_PLUS_MINUS = re.compile(r"^\s*(?:±|\+/-|\+-)\s*")
+_PLUS_MINUS = re.compile(rf"^\s*(?:{_PM})\s*")
 
 
 def _plus_minus_hint(text: str, unit: str) -> str | None:
@@ -389,10 +389,10 @@ def _plus_minus_hint(text: str, unit: str) -> str | None:
     m = _PLUS_MINUS.match(text)
     if unit != "%" or not m:
         return None
-    rest = text[m.end():].strip()
-    if not _PLAIN.match(rest):
+    plain = _PLAIN.match(text[m.end():].strip())
+    if not plain:
         return None
-    number, after = _PLAIN.match(rest).groups()
+    number, after = plain.groups()
     return (f'a tolerance is taken both ways: write "{number} {after.strip() or "%"}" '
             "without the ±")
 
