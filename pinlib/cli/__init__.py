@@ -292,14 +292,13 @@ def _print_error(err: PinlibError) -> None:
     """The error, then the further problems found with it (at most :data:`ALSO_SHOWN`),
     each wrapped to a terminal (its first line keeps ``file:line, field``; output to a
     file or a pipe keeps each whole, one line a problem)."""
-    from pinlib.core.labels import plural_s
+    from pinlib.core.labels import counted
     from pinlib.present.terminal import fitted
 
     lines = [f"pinlib: error: {err.message}"]
     lines += [f"pinlib: also: {other.message}" for other in err.also[:ALSO_SHOWN]]
     if len(err.also) > ALSO_SHOWN:
-        lines.append(M.FURTHER_PROBLEMS.format(n=len(err.also) - ALSO_SHOWN,
-                                              s=plural_s(len(err.also) - ALSO_SHOWN)))
+        lines.append(counted(M.FURTHER_PROBLEMS, len(err.also) - ALSO_SHOWN))
     for line in lines:
         print(fitted(line, sys.stderr), file=sys.stderr)
 

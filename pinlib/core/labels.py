@@ -24,7 +24,7 @@ from typing import Any
 
 __all__ = ["FIGURES", "SHORT", "CHECKS", "figure_label", "short_label", "check_label",
            "path_label", "sampled_check_label", "note_label", "shown_figures", "humanize",
-           "and_list", "plural_s"]
+           "and_list", "plural_s", "counted"]
 
 #: Figure id -> label, in the order a table lists them (units come with the values).
 FIGURES: dict[str, str] = {
@@ -134,6 +134,13 @@ def plural_s(n) -> str:
     (``f"{n} problem{plural_s(n)}"``: 1 problem, 0 problems, 3 problems); never
     "problem(s)"."""
     return "" if n == 1 else "s"
+
+
+def counted(template: str, n: int, **fields) -> str:
+    """A message that counts ``n`` things, its ``{n}`` and its noun's ending ``{s}``
+    filled (:func:`plural_s`): ``counted("{n} more problem{s}", 1)`` is "1 more
+    problem"."""
+    return template.format(n=n, s=plural_s(n), **fields)
 
 
 def and_list(words, conjunction: str = "and") -> str:

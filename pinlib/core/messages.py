@@ -521,7 +521,7 @@ NO_SUCH_SEGMENT = "no segment of that id on the bus"
 BUDGET_DOES_NOT_ADD_UP = "the timing budget terms do not add up to the engine's margin"
 
 # ---------------------------------------------------------------- pinlib/present/charts.py
-ARRAY_DIMENSIONS = "array with {ndim} dimension{s}"
+ARRAY_DIMENSIONS = "array with {n} dimension{s}"
 CANNOT_BE_DRAWN = "cannot be drawn"
 RP_BOUNDS_SHAPE = "rp_min and rp_max must be floats or arrays as long as cb"
 WINDOW_NOT_DRAWABLE = "no point of the window can be drawn on log axes"

@@ -45,7 +45,7 @@ import typing
 
 from pinlib.core import messages as M
 from pinlib.core.errors import PinlibError
-from pinlib.core.labels import and_list, plural_s
+from pinlib.core.labels import and_list, counted
 
 __all__ = ["Record", "RecordError", "Issue", "Involving", "Field", "Convert", "Rule", "WrittenAs",
            "field", "after", "check"]
@@ -132,8 +132,7 @@ class Rule:
                 if not self._re.fullmatch(v):
                     return M.TEXT_WRONG_FORM, f"text matching {self.pattern}"
             if self.min_length is not None and len(v) < self.min_length:
-                return M.TEXT_TOO_SHORT.format(n=self.min_length,
-                                               s=plural_s(self.min_length)), None
+                return counted(M.TEXT_TOO_SHORT, self.min_length), None
             if self.max_length is not None and len(v) > self.max_length:
                 return M.TEXT_TOO_LONG.format(n=self.max_length), None
         elif isinstance(v, (int, float)) and (

@@ -21,7 +21,7 @@ from pathlib import Path
 from pinlib.core import messages as M
 from pinlib.core import nearby
 from pinlib.core.errors import LibraryError, PinlibError
-from pinlib.core.labels import plural_s
+from pinlib.core.labels import counted
 from pinlib.core.records import Issue, Record, RecordError
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_index, line_of, load
@@ -415,8 +415,7 @@ class Library:
             first = broken[0]
             hints = [first.hint, M.NAMED_AT.format(where=where) if where else None]
             if len(broken) > 1:
-                hints.append(M.MORE_PROBLEMS.format(n=len(broken) - 1,
-                                                      s=plural_s(len(broken) - 1)))
+                hints.append(counted(M.MORE_PROBLEMS, len(broken) - 1))
             raise LibraryError(M.PART_DOES_NOT_VALIDATE.format(part=part_id,
                                                                problem=first.problem),
                                file=first.file, line=first.line, field=first.field,
@@ -427,8 +426,7 @@ class Library:
             "'pinlib parts list' shows the library"
         unread = self.unread()
         if unread:
-            hint += "; " + M.UNREAD_FILES.format(n=len(unread), s=plural_s(len(unread)),
-                                           first=unread[0].message)
+            hint += "; " + counted(M.UNREAD_FILES, len(unread), first=unread[0].message)
         raise LibraryError(M.UNKNOWN_PART, file=file, line=line, field=field, value=part_id,
                            hint=hint)
 

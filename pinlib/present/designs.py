@@ -4,6 +4,7 @@
 from __future__ import annotations
 
 from pinlib.core import messages as M
+from pinlib.core.labels import plural_s
 
 __all__ = ["summary_line", "format_many", "format_uses", "format_swaps"]
 
@@ -125,7 +126,7 @@ def format_uses(part_id: str, uses: list[dict], n_designs: int) -> str:
 
 def _counted(n: int, noun: str) -> str:
     """``n`` and the noun, plural but for one: ``1 check``, ``16 margins``."""
-    return f"{n} {noun}{'' if n == 1 else 's'}"
+    return f"{n} {noun}{plural_s(n)}"
 
 
 def _swap_lines(s, width: int) -> list[str]:

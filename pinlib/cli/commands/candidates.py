@@ -8,7 +8,7 @@ import sys
 from pinlib.cli import SUMMARIES
 from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
-from pinlib.core.labels import plural_s
+from pinlib.core.labels import counted
 
 __all__ = ["add_parser", "run"]
 
@@ -104,7 +104,7 @@ def run(args) -> int:
     if problems:
         from pinlib.present.terminal import fitted
 
-        warning = M.LIBRARY_HAS_PROBLEMS.format(n=len(problems), s=plural_s(len(problems)))
+        warning = counted(M.LIBRARY_HAS_PROBLEMS, len(problems))
         print(fitted("pinlib: warning: " + warning + "; "
                      + M.FIRST_PROBLEM.format(message=problems[0].message),
                      sys.stderr), file=sys.stderr)

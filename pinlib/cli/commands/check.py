@@ -8,7 +8,7 @@ import sys
 from pinlib.cli import SUMMARIES
 from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
-from pinlib.core.labels import plural_s
+from pinlib.core.labels import counted
 
 __all__ = ["add_parser", "run"]
 
@@ -210,8 +210,7 @@ def _run_one(args) -> int:
     design = load_design(args.design, library_folders=args.library)
     problems = design.library.problems  # files that could not be read, parts asked for
     if problems:
-        _warn("pinlib: warning: " + M.LIBRARY_HAS_PROBLEMS.format(n=len(problems),
-                                                                 s=plural_s(len(problems)))
+        _warn("pinlib: warning: " + counted(M.LIBRARY_HAS_PROBLEMS, len(problems))
               + "; " + M.FIRST_PROBLEM.format(message=problems[0].message))
     _warn_implausible(design)
     if getattr(args, "seed", None) is not None and getattr(args, "monte_carlo", None) is None:

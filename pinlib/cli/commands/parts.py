@@ -18,7 +18,7 @@ from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
 from pinlib.core import nearby
 from pinlib.core.errors import InputError
-from pinlib.core.labels import plural_s
+from pinlib.core.labels import counted
 from pinlib.present.terminal import fitted, fitted_command
 from pinlib.present.terminal import shown_path as _rel
 
@@ -205,8 +205,7 @@ def _load(args, extra=()):
 
 def _warn_problems(lib) -> None:
     if lib.problems:
-        _warn("pinlib: warning: " + M.LIBRARY_HAS_PROBLEMS.format(
-            n=len(lib.problems), s=plural_s(len(lib.problems))))
+        _warn("pinlib: warning: " + counted(M.LIBRARY_HAS_PROBLEMS, len(lib.problems)))
 
 
 def _choice(value, choices, field):

@@ -8,6 +8,7 @@ from pathlib import Path
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.core.labels import plural_s
 from pinlib.present.terminal import shown_path as _rel
 
 
@@ -26,6 +27,7 @@ def run_check(args, load) -> int:
     from pinlib.library.plausible import part_warnings
     from pinlib.library.sources import unsourced
 
+    one = None  # one part file checked alone
     if args.folder is None:
         lib = load(args)
         lib.resolve_all()
@@ -66,7 +68,7 @@ def run_check(args, load) -> int:
         from pinlib.library.walk import part_paths
 
         n_files = 1 if one is not None else len(part_paths(folder)[0])  # as the walk read
-        scope = _rel(one if one is not None else folder)
+        scope = _rel(one or folder)
     # A problem of a class is a problem of every part that extends it, each failing
     # with the same error at the class's line: listed once.
     once: dict = {}
@@ -83,8 +85,7 @@ def run_check(args, load) -> int:
         for p in problems:
             print(fitted(p.message))
         n = len(problems)
-        verdict = "no problems" if not n else f"{n} problem{'s' if n != 1 else ''}"
-        where = f", {scope}" if getattr(args, "folder", None) and Path(args.folder).is_file() \
-            else f" in {scope}"
-        print(fitted(f"checked {n_files} file{'s' if n_files != 1 else ''}{where}: {verdict}"))
+        verdict = "no problems" if not n else f"{n} problem{plural_s(n)}"
+        where = f", {scope}" if one is not None else f" in {scope}"
+        print(fitted(f"checked {n_files} file{plural_s(n_files)}{where}: {verdict}"))
     return 1 if problems else 0

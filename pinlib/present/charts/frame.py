@@ -9,7 +9,7 @@ import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
-from pinlib.core.labels import plural_s
+from pinlib.core.labels import counted
 from pinlib.present.charts.render import _alt
 from pinlib.present.charts.style import (
     _AXIS_ROOM,
@@ -40,7 +40,7 @@ def _array(x, field: str, *, ndim: int | tuple[int, ...] = 1) -> np.ndarray:
                          value=_short(x), expected="floats in SI units") from None
     dims = (ndim,) if isinstance(ndim, int) else ndim
     if a.ndim not in dims:
-        raise InputError(M.ARRAY_DIMENSIONS.format(ndim=a.ndim, s=plural_s(a.ndim)), field=field,
+        raise InputError(counted(M.ARRAY_DIMENSIONS, a.ndim), field=field,
                          value=_short(x),
                          expected=" or ".join(f"{d}-D" for d in dims) + " array")
     return a
