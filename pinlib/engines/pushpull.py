@@ -29,7 +29,7 @@ from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError
 from pinlib.core.tomlfile import dotted
 from pinlib.engines.ppsupply import supply_checks, supply_rows
-from pinlib.engines.pushline import Endpoint, LineInputs, device_supply
+from pinlib.engines.pushline import Endpoint, LineInputs, device_supply, pulled_to_bus
 from pinlib.engines.spi import evaluate_spi, spi_line_inputs
 from pinlib.model.design import Bus, Design
 from pinlib.model.design.route import gpio_pin  # the rule of a device's GPIO pin
@@ -100,10 +100,8 @@ def gpio_line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
                                    "a push-pull or open-drain pin of that name")
             err.loc = line.loc  # the line's own place in the file (the dispatcher's line)
             raise err
-        if line.pullup is not None:  # to the bus rail, as varied on this board
-            line = replace(line, pullup_rail=float(bus.supply))
-        out.append(LineInputs(sig, line, tuple(drivers), tuple(eps), tuple(receivers),
-                              clock=bus.clock, clock_line=False,
+        out.append(LineInputs(sig, pulled_to_bus(line, bus), tuple(drivers), tuple(eps),
+                              tuple(receivers), clock=bus.clock, clock_line=False,
                               warn_margin=design.warn_margin, bus_id=bus.id))
     return out
 

@@ -533,11 +533,12 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
     read_files: set[Path] = set()  # a file read through a folder and a folder inside it
     for folder, is_builtin in sources:
         if not folder.is_dir():
-            err = LibraryError(M.LIBRARY_FOLDER_NOT_FOUND, file=str(folder),
-                               hint=_builtin_hint() if is_builtin else None)
             if folder.exists():
                 err = LibraryError(M.LIBRARY_IS_A_FILE, file=str(folder),
                                    hint=M.LIBRARY_FILE_HINT.format(folder=folder.parent))
+            else:
+                err = LibraryError(M.LIBRARY_FOLDER_NOT_FOUND, file=str(folder),
+                                   hint=_builtin_hint() if is_builtin else None)
             if strict or is_builtin:  # without the built-in parts every id is unknown
                 raise err
             lib.problems.append(err)

@@ -102,9 +102,7 @@ def supply_source(dev: Device, sup, low: bool) -> str:
     the rail is nearer to, ``supply.min`` where ``low`` else ``supply.max`` (a bridging
     part's side ``sides.a.supply.min``), and where that value comes from
     (:func:`value_source`): ``'mcu-3v3 supply.max (mcu-3v3.toml), generic: ...'``."""
-    side = next((name for name, s in dev.part.sides.items()
-                 if s.supply is sup and sup is not dev.part.supply), None)
-    where = f"sides.{side}.supply" if side else "supply"
+    where = "supply" if sup is dev.part.supply else f"sides.{dev.part_side}.supply"
     return (value_source(dev, f"{where}.min", sup.min) if low
             else value_source(dev, f"{where}.max", sup.max))
 

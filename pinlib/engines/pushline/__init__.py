@@ -101,6 +101,7 @@ from pinlib.engines.pushline.pins import (  # noqa: F401
     device_supply,
     endpoint,
     is_bridge,
+    pulled_to_bus,
 )
 from pinlib.engines.pushline.rules import (  # noqa: F401
     EDGE_FRACTION,
@@ -164,5 +165,6 @@ __all__ = [
     "endpoint",
     "device_supply",
     "is_bridge",
+    "pulled_to_bus",
 ]
 

@@ -559,7 +559,7 @@ def _add_checks(a: LineAnalysis, res: LineResult, clock, clock_line, warn_margin
     if a.line.series_resistor == "auto":
         res.add(_termination_check(a))
     # the open-drain drivers' pull-ups as _driver_models found them; a push-pull
-    # driver's only where the line has any (every SPI line has none: one look at it)
+    # driver's only where the line has any (most have none: one look at it)
     pulled = a.line.pullup is not None or any(carried_pullup(p) for p in a.loads)
     pullups = {**{d.ref: open_drain_pullup(a.line, a.loads, d) for d in a.drivers
                   if pulled and d.ref not in pullup}, **pullup}

@@ -3,9 +3,11 @@ bridges, and a flight time (:class:`Flight`)."""
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from pinlib.core.valueclass import value_class
 from pinlib.library.schema import Pin
-from pinlib.model.design import Bus, Device
+from pinlib.model.design import Bus, Device, Line
 
 
 @value_class(frozen=True)
@@ -101,6 +103,25 @@ def device_supply(device: Device, bus: Bus) -> float:
         The device's own rail when the design gives one, else the bus supply. [V]
     """
     return float(device.supply if device.supply is not None else bus.supply)
+
+
+def pulled_to_bus(line: Line, bus: Bus) -> Line:
+    """The line with its own pull-up's rail set to the bus supply.
+
+    Parameters
+    ----------
+    line : Line
+        A line of the bus (a GPIO or an SPI line, its own ``pullup`` or none). [1]
+    bus : Bus
+        The bus, its supply as varied on this board. [1]
+
+    Returns
+    -------
+    Line
+        ``line`` with ``pullup_rail`` the bus supply where it has a pull-up; else
+        ``line`` itself. [1]
+    """
+    return line if line.pullup is None else replace(line, pullup_rail=float(bus.supply))
 
 
 def endpoint(device: Device, function: str, bus: Bus) -> Endpoint | None:

@@ -3,8 +3,8 @@
 A part states its low level ``v_ol`` as a maximum at a sink current ``i_ol``; drawn
 harder, the pin's low level is no longer what its datasheet guarantees, and the
 ``level-low`` check that reads ``v_ol`` no longer holds. On a push-pull line only a
-GPIO line's ``pullup`` (or a pull-up a part carries on its pin) loads a driver this
-way; an open-drain driver always pulls against one.
+line's own ``pullup`` (a GPIO or SPI line's) or a pull-up a part carries on its pin
+loads a driver this way; an open-drain driver always pulls against one.
 """
 
 from __future__ import annotations

@@ -4,7 +4,6 @@
 from __future__ import annotations
 
 import math
-from dataclasses import replace
 
 import numpy as np
 
@@ -18,6 +17,7 @@ from pinlib.engines.pushline import (
     LineInputs,
     endpoint,
     is_bridge,
+    pulled_to_bus,
 )
 from pinlib.engines.spi.budget import ControllerTiming, PeripheralTiming, budget_terms
 from pinlib.engines.spi.margins import max_clock
@@ -261,11 +261,9 @@ def line_setup(bus: Bus, design: Design,
             if not drivers:
                 notes.append("cipo is routed but no peripheral drives it; line not evaluated")
                 continue
-        if line.pullup is not None:  # to the bus rail, as varied on this board
-            line = replace(line, pullup_rail=float(bus.supply))
-        out[sig] = LineInputs(sig, line, tuple(drivers), tuple(loads), tuple(receivers),
-                              clock=bus.clock, clock_line=(sig == "sclk"), warn_margin=warn,
-                              bus_id=bus.id)
+        out[sig] = LineInputs(sig, pulled_to_bus(line, bus), tuple(drivers), tuple(loads),
+                              tuple(receivers), clock=bus.clock, clock_line=(sig == "sclk"),
+                              warn_margin=warn, bus_id=bus.id)
     return out, controller, peripherals, bridges, notes
 
 

@@ -155,7 +155,8 @@ def _margin_moved(o: dict, n: dict, threshold: float) -> bool:
         return True
     if unit is not None:
         return abs(b - a) > threshold * abs(a)
-    if beyond_shown(a) and beyond_shown(a) == beyond_shown(b):
+    side = beyond_shown(a)
+    if side and side == beyond_shown(b):
         return False
     return abs(b - a) > threshold and abs(b - a) > threshold * abs(a)
 
