@@ -11,15 +11,13 @@ and each pin's leakage as a current source at its own pin.
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import pytest
+from irqdesign import irq_design
 from spice import have_ngspice, run_deck
 
 from pinlib.engines.pushpull import line_inputs
 from pinlib.model.design import load_design
 
-DATA = Path(__file__).parent / "data" / "pushpull"
 VDD = 3.3  # invented test data: the bus supply
 pytestmark = [pytest.mark.spice,
               pytest.mark.skipif(not have_ngspice(), reason="ngspice not on PATH")]
@@ -33,26 +31,10 @@ Z0 = 60.0
 
 
 def _analysis(tmp_path, line: str, more: str = ""):
-    """The engine's analysis of an irq line (``line``: the body of ``[bus.lines.irq]``)
-    from the sink U2 (pp-periph's open-drain irq, VOL 0.4 V at 4 mA, 5 pF, 1 µA) to the
-    input U1 (pp-ctrl's irq, 5 pF, 1 µA), and the devices ``more`` lists: invented test
-    parts."""
-    path = tmp_path / "d.toml"
-    path.write_text(f"""format = "pinlib.design/1"
-title = "open-drain line against ngspice (invented)"
-library = ["{DATA.as_posix()}"]
-
-[[bus]]
-id = "irq"
-protocol = "gpio"
-supply = "3.3 V"
-devices = [
-  {{ ref = "U1", part = "pp-ctrl", role = "controller", pin = "irq" }},
-  {{ ref = "U2", part = "pp-periph", pin = "irq" }},
-{more}]
-[bus.lines.irq]
-{line}
-""", encoding="utf-8")
+    """The engine's analysis of the irq line of :func:`irqdesign.irq_design` (``line``:
+    the body of ``[bus.lines.irq]``, ``more``: further devices): invented test parts."""
+    path = irq_design(tmp_path / "d.toml", line, more,
+                      title="open-drain line against ngspice (invented)")
     d = load_design(path)
     (li,) = line_inputs(d.bus("irq"), d)
     return li.analyse()

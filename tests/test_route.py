@@ -9,6 +9,7 @@ import re
 from pathlib import Path
 
 import pytest
+from irqdesign import irq_design
 
 from pinlib.cli import main
 from pinlib.core import messages as M
@@ -976,24 +977,10 @@ def _cable_line(tmp_path, ends: bool):
     """An open-drain irq over 10 m of the test cable (pp-cable, invented), 4.7 kΩ, with
     or without 3 mm of trace at each end: its line analysis."""
     trace = '  { length = "3 mm", capacitance = "1.2 pF/cm", delay = "60 ps/cm" },\n'
-    path = tmp_path / ("ends.toml" if ends else "bare.toml")
-    path.write_text(f"""format = "pinlib.design/1"
-title = "an interrupt over a long cable (invented)"
-library = ["{(DATA / 'pushpull').as_posix()}"]
-[[bus]]
-id = "irq"
-protocol = "gpio"
-supply = "3.3 V"
-devices = [
-  {{ ref = "U1", part = "pp-ctrl", role = "controller", pin = "irq" }},
-  {{ ref = "U2", part = "pp-periph", pin = "irq" }},
-]
-[bus.lines.irq]
-pullup = "4.7 kΩ"
-sections = [
-{trace if ends else ""}  {{ part = "pp-cable", length = "10 m" }},
-{trace if ends else ""}]
-""", encoding="utf-8")
+    stretches = (trace if ends else "") + '  { part = "pp-cable", length = "10 m" },\n'
+    path = irq_design(tmp_path / ("ends.toml" if ends else "bare.toml"),
+                      f'pullup = "4.7 kΩ"\nsections = [\n{stretches}{trace if ends else ""}]',
+                      title="an interrupt over a long cable (invented)")
     return check_design(load_design(path)).buses[0].lines[0]
 
 

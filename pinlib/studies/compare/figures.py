@@ -102,10 +102,9 @@ def figure_value_text(name: str, value, unit: str) -> str:
 def format_change(rel: float | None, old=None) -> str:
     """A relative change as text, never in exponent form: ``(+12.5 %)``, ``(-540 %)``
     (three significant digits), under 1 % one (``(-0.8 %)``, ``(+0.01 %)``) up to
-    ±999 %; a positive figure that grew further
-    by its factor, ``(×187)``; other changes beyond that as
-    :func:`pinlib.model.result.percent_text` shows margins, ``(> +999 %)`` /
-    ``(< -999 %)``; one nearer to zero than 0.001 % as it shows them too
+    ±999 %; a positive figure that grew further by its factor, ``(×187)``; other changes
+    beyond that as :func:`pinlib.model.result.percent_text` shows margins,
+    ``(> +999 %)`` / ``(< -999 %)``; one nearer to zero than 0.001 % as it shows them too
     (:func:`pinlib.model.result.tiny_percent_text`), ``(< 0.001 %)`` / ``(> -0.001 %)``;
     ``(from zero)``; empty for none.
 

@@ -1,0 +1,33 @@
+"""An open-drain interrupt line between two invented test parts, written as a design
+file: the GPIO bus that tests/test_gpio_spice.py and tests/test_route.py build."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+#: The invented test parts (pp-ctrl, pp-periph, pp-cable).
+PARTS = Path(__file__).parent / "data" / "pushpull"
+
+
+def irq_design(path: Path, line: str, more: str = "",
+               title: str = "an open-drain interrupt line (invented)") -> Path:
+    """Write at ``path`` a design of one GPIO bus ``irq`` whose line runs from the sink
+    U2 (pp-periph's open-drain irq, VOL 0.4 V at 4 mA, 5 pF, 1 µA) to the input U1
+    (pp-ctrl's irq, 5 pF, 1 µA), with the devices ``more`` lists (lines of the devices
+    array) and ``line`` the body of ``[bus.lines.irq]``; ``path``."""
+    path.write_text(f"""format = "pinlib.design/1"
+title = "{title}"
+library = ["{PARTS.as_posix()}"]
+
+[[bus]]
+id = "irq"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  {{ ref = "U1", part = "pp-ctrl", role = "controller", pin = "irq" }},
+  {{ ref = "U2", part = "pp-periph", pin = "irq" }},
+{more}]
+[bus.lines.irq]
+{line}
+""", encoding="utf-8")
+    return path
