@@ -257,9 +257,20 @@ def test_a_long_line_of_per_length_values_is_noted_as_solved_lossless(lib, metre
     notes = _loss_notes(a)
     assert bool(notes) is noted
     if noted:
-        assert notes[0].startswith("2.5 m of per-length values (a delay of 12.5 ns) carry "
-                                   "no resistance")
+        assert notes[0].startswith("2.5 m of stretches given per length (a delay of "
+                                   "12.5 ns) carry no resistance")
         assert "measurement" in notes[0]
+
+
+def test_a_long_cable_is_named_by_its_class_in_the_lossless_note(lib):
+    # a cable stretch read "2 m of cable ribbon-cable"; it is named by its class's id.
+    # derived: the invented test cable pp-cable (100 Ω, 5 ns/m, 0.5 pF/cm) over 2.5 m is
+    # 12.5 ns, past LOSS_DELAY (10 ns)
+    cable = Section(2.5, capacitance=0.5e-10, delay=5e-9, impedance=100.0,
+                    part_id="pp-cable")
+    notes = _loss_notes(controller_line(lib, [cable]))
+    assert notes and notes[0].startswith("2.5 m of pp-cable (a delay of 12.5 ns) carry "
+                                         "no resistance")
 
 
 def test_a_trace_of_zero_thickness_states_no_copper_resistance(lib):

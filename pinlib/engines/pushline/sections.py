@@ -32,7 +32,8 @@ class Stretch:
     c : float
         Total capacitance of the section. [F]
     label : str
-        What the section is (geometry name, cable part). [1]
+        What the section is: ``geometry NAME``, the cable class's id, or
+        ``stretches given per length``. [1]
     """
 
     length: float
@@ -89,7 +90,7 @@ def stretches_of(sections: Sequence[Section]) -> list[Stretch]:
             out.append(Stretch(s.length, float(m.z0), float(m.tpd) * s.length,
                                float(m.c) * s.length, f"geometry {s.geometry.name}"))
             continue
-        label = f"cable {s.part_id}" if s.part_id else "per-length values"
+        label = s.part_id or "stretches given per length"
         c = float(s.capacitance)
         tpd = s.delay
         if tpd is None and s.impedance is not None:
