@@ -962,3 +962,39 @@ def test_corners_never_take_a_board_without_the_check_for_its_worst(monkeypatch)
     assert row.status == nom.status == "pass" and row.corner == []
     assert row.margin == nom.margin and row.value == nom.value
     assert all(math.isfinite(g) for c in got.checks for _, _, g in c.corner)
+
+
+def test_monte_carlo_counts_the_boards_a_check_is_absent_from(monkeypatch):
+    # a check a board does not have reads, in a push-pull batch, as a NaN margin that
+    # passes; Monte Carlo counted such a board as passing the check without a word. Here
+    # the engine drops sink-current on every board but the nominal one (a stand-in, as
+    # in the corner test above: no check of today is absent on some boards): the run
+    # must say on how many boards the check is absent, in its JSON and its text
+    from dataclasses import replace as dc_replace
+
+    from pinlib.engines import ppbatch
+    from pinlib.studies.whatif.tolerances import _nominal
+
+    design = load_design(ROOT / "workbooks" / "designs" / "gpio-reset-board.toml")
+    nominal = _nominal(design)
+    real = ppbatch.pp.evaluate_board
+
+    def without_sink(bus, d):
+        res = real(bus, d)
+        lines = [dc_replace(ln, checks=[c for c in ln.checks if c.id != "sink-current"])
+                 for ln in res.lines]
+        return dc_replace(res, lines=lines)
+
+    monkeypatch.setattr(ppbatch.pp, "evaluate_board", without_sink)
+    mc = whatif.monte_carlo(design, 40, seed=3, results=nominal)
+    (row,) = [c for c in mc.checks if c.id == "sink-current"]
+    assert row.absent == 40 and row.fails == 0
+    assert row.to_json()["absent"] == 40
+    text = " ".join(mc.format_text(limit=None).split())
+    assert "absent from 40 boards" in text
+    # and the report's Monte Carlo table, whose pass fraction would read 100 % alone
+    from pinlib.present.review.montecarlo import _mc_cells, _mc_rows
+    (cells,) = [_mc_cells(r) for r in _mc_rows(mc) if "Sink current" in r["where"]]
+    assert cells[1] == "100.00% (absent from 40 boards)"
+    # every other check is on every board
+    assert all(c.absent == 0 for c in mc.checks if c.id != "sink-current")

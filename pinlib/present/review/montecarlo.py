@@ -4,7 +4,7 @@ run's summary sentences and the histograms of the checks with the lowest pass fr
 
 from __future__ import annotations
 
-from pinlib.core.labels import check_label, sampled_check_label
+from pinlib.core.labels import check_label, counted, sampled_check_label
 from pinlib.core.quantity import format_si
 from pinlib.model.result import margin_order, signed_margin_text
 from pinlib.present.review.draw import _draw
@@ -60,6 +60,7 @@ def _mc_rows(mc) -> list[dict]:
                 "varies": bool(_get(entry, "varies", True)),
                 "failures": passes.passes < passes.n, "lowest": lowest,
                 "warns": _get(entry, "warns", 0) or 0,
+                "absent": _get(entry, "absent", 0) or 0,
                 "sensitivity": list(_get(entry, "sensitivity", []) or [])[:3],
                 "sensitivity_text": entry.sensitivity_text()
                 if hasattr(entry, "sensitivity_text") else None,
@@ -100,7 +101,7 @@ def _mc_charts(mc, keys) -> tuple[list, list]:
     from pinlib.present import charts as ch
 
     rows = _mc_rows(mc)
-    shown = [r for r in rows if r["varies"] or r["failures"]]
+    shown = [r for r in rows if r["varies"] or r["failures"] or r.get("absent")]
 
     def order(r):  # as the text's rows: fewest passing, most warning, lowest margin
         frac = r["fraction"] if r["fraction"] is not None else 1.0
@@ -168,6 +169,8 @@ def _yield(y) -> str:
 
 def _mc_cells(row: dict) -> list[str]:
     frac = "" if row["fraction"] is None else percent_text(row["fraction"])
+    if row.get("absent"):  # counted as passing there: the board has no such check
+        frac += counted(" (absent from {n} board{s})", row["absent"])
     ci = "" if row["ci"] is None else f"{percent_text(row['ci'][0])} to " \
                                       f"{percent_text(row['ci'][1])}"
     low = "" if row["lowest"] is None else signed_margin_text(row["lowest"],

@@ -7,7 +7,7 @@ from dataclasses import field
 
 import numpy as np
 
-from pinlib.core.labels import sampled_check_label
+from pinlib.core.labels import counted, sampled_check_label
 from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
 from pinlib.model.result import json_number, margin_order, signed_margin_text
@@ -49,6 +49,10 @@ class McCheck:
         How much of the margin's variance the linear fit explains. [1]
     warns, fails : int or None
         Boards on which the check warns, fails (of all ``passes.n``). [1]
+    absent : int or None
+        Boards that have no such check (no margin and no failure: a check the engine
+        makes on some boards only); :attr:`passes` counts them, as boards on which the
+        check does not fail, and the text says how many. [1]
     low, high : float or None
         Lowest and highest finite margin over all boards. [1]
     worst_board : int or None
@@ -79,6 +83,7 @@ class McCheck:
     r2: float | None = None
     warns: int | None = None
     fails: int | None = None
+    absent: int | None = None
     low: float | None = None
     high: float | None = None
     worst_board: int | None = None
@@ -140,7 +145,7 @@ class McCheck:
                 "nominal_margin": json_number(self.nominal_margin),
                 "margin_unit": self.margin_unit,
                 "pass": self.passes.to_json(), "warns": self.warns, "fails": self.fails,
-                "varies": self.varies,
+                "absent": self.absent, "varies": self.varies,
                 "margin": {"min": json_number(q[0]), "p01": json_number(q[1]),
                            "median": json_number(q[2])},
                 "sensitivity": [{"parameter": n, "coefficient": c} for n, c in self.sensitivity],
@@ -206,7 +211,8 @@ class McResult:
             lines.append(f"  all sampled buses pass on {_pct(self.board)}")
         for bus, y in self.buses.items():  # a coupling's id holds "<-"
             lines.append(f"  {'coupling' if '<-' in bus else 'bus'} {bus}: {_pct(y)}")
-        rows = [c for c in self.checks if c.varies or c.passes.passes < c.passes.n]
+        rows = [c for c in self.checks
+                if c.varies or c.passes.passes < c.passes.n or c.absent]
         # the fewest passing boards, then the most boards that warn (a margin in a unit
         # sorts after every fraction: a warning slack in seconds must not fall among the
         # "more" below rows that never warn), then the lowest margin
@@ -223,6 +229,8 @@ class McResult:
                 # a rule of thumb's check warns below its limit: 100 % passing beside a
                 # margin of -89 % says so, or it reads as a contradiction
                 warned = f"warns on {c.warns}; " if c.warns else ""
+                if c.absent:  # counted as passing: the text says the check is not there
+                    warned += counted("absent from {n} board{s}; ", c.absent)
                 # "min" beside its margin (one space: a wrapped row keeps them together),
                 # the pair right-aligned so the margins line up
                 low = "min " + _fmt_margin(_low(c), c.margin_unit)

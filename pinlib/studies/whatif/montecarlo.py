@@ -250,7 +250,7 @@ def _bus_checks(bus_id: str, st: _Tally, fits: list, n: int, kept: int) -> list[
             ec.source if ec is not None else "", ec.status if ec is not None else None,
             ec.margin if ec is not None else None,
             Yield(passes, n, wilson_interval(passes, n)), mg, val, sens, r2,
-            warns=int(st.warns[j]), fails=int(st.fails[j]),
+            warns=int(st.warns[j]), fails=int(st.fails[j]), absent=int(st.absent[j]),
             margin_unit=ec.margin_unit if ec is not None else None,
             low=st.extreme(j, 0), high=st.extreme(j, 1), worst_board=st.worst_board(j),
             sampled=kept, histogram=st.hist[j]))

@@ -67,7 +67,8 @@ class MarginHistogram:
 
 class _Tally:
     """What a Monte Carlo run keeps of one bus's checks while its chunks go by: counts of
-    failing and warning boards, boards on which every check passes, each margin's lowest
+    failing and warning boards, of boards a check is absent from (no margin, no failure:
+    the board has no such check), boards on which every check passes, each margin's lowest
     and highest finite value with the board it came from, and the margins and values of
     the first ``kept`` boards (the sample of the sensitivity fit)."""
 
@@ -81,6 +82,7 @@ class _Tally:
         self.value = [None if c.value is None else np.empty(kept) for c in items]
         self.fails = np.zeros(k, dtype=np.int64)
         self.warns = np.zeros(k, dtype=np.int64)
+        self.absent = np.zeros(k, dtype=np.int64)
         self.bus_ok = 0
         # per check: lowest and highest finite margin, and the boards they came from
         self.ext = np.full((k, 2), np.nan)
@@ -104,6 +106,7 @@ class _Tally:
                     self.value[j][start:start + take] = c.value[:take]
             if c.margin is not None:
                 mg = np.asarray(c.margin, dtype=float).reshape(m)
+                self.absent[j] += int(np.count_nonzero(np.isnan(mg) & (c.status == 0)))
                 self._extremes(j, mg, start)
                 self.hist[j].add(mg)
         self.bus_ok += int(np.count_nonzero(ok))
