@@ -933,12 +933,10 @@ def test_a_gpio_line_named_as_its_bus_is_named_once(capsys, monkeypatch):
     assert "reset pull-up ±1 %" in out and "reset Level high U1" in out
 
 
-def test_corners_never_take_a_board_without_the_check_for_its_worst(monkeypatch):
-    # a check a corner board does not have reads, in a push-pull batch, as a NaN margin
-    # that passes; the corner search read NaN as the worst, so such a check was listed at
-    # that board as PASS with no margin. Here the engine drops sink-current on every
-    # board but the nominal one (a stand-in: no check of today is absent at some
-    # corners): the study must give the check as designed, at no corner
+def _sink_current_only_nominal(monkeypatch):
+    """The GPIO reset board and its nominal results, with the engine patched to drop
+    sink-current on every board but the nominal one (a stand-in: no check of today is
+    absent on some boards)."""
     from dataclasses import replace as dc_replace
 
     from pinlib.engines import ppbatch
@@ -955,6 +953,15 @@ def test_corners_never_take_a_board_without_the_check_for_its_worst(monkeypatch)
         return dc_replace(res, lines=lines)
 
     monkeypatch.setattr(ppbatch.pp, "evaluate_board", without_sink)
+    return design, nominal
+
+
+def test_corners_never_take_a_board_without_the_check_for_its_worst(monkeypatch):
+    # a check a corner board does not have reads, in a push-pull batch, as a NaN margin
+    # that passes; the corner search read NaN as the worst, so such a check was listed at
+    # that board as PASS with no margin. With sink-current absent from every board but
+    # the nominal one, the study must give the check as designed, at no corner
+    design, nominal = _sink_current_only_nominal(monkeypatch)
     got = whatif.corners(design, results=nominal)
     (row,) = [c for c in got.checks if c.id == "sink-current"]
     (nom,) = [c for ln in nominal["reset"].lines for c in ln.checks
@@ -966,26 +973,12 @@ def test_corners_never_take_a_board_without_the_check_for_its_worst(monkeypatch)
 
 def test_monte_carlo_counts_the_boards_a_check_is_absent_from(monkeypatch):
     # a check a board does not have reads, in a push-pull batch, as a NaN margin that
-    # passes; Monte Carlo counted such a board as passing the check without a word. Here
-    # the engine drops sink-current on every board but the nominal one (a stand-in, as
-    # in the corner test above: no check of today is absent on some boards): the run
-    # must say on how many boards the check is absent, in its JSON and its text
-    from dataclasses import replace as dc_replace
+    # passes; Monte Carlo counted such a board as passing the check without a word. With
+    # sink-current absent from every board but the nominal one, the run must say on how
+    # many boards the check is absent, in its JSON and its text
+    from pinlib.present.review.montecarlo import _mc_cells, _mc_rows
 
-    from pinlib.engines import ppbatch
-    from pinlib.studies.whatif.tolerances import _nominal
-
-    design = load_design(ROOT / "workbooks" / "designs" / "gpio-reset-board.toml")
-    nominal = _nominal(design)
-    real = ppbatch.pp.evaluate_board
-
-    def without_sink(bus, d):
-        res = real(bus, d)
-        lines = [dc_replace(ln, checks=[c for c in ln.checks if c.id != "sink-current"])
-                 for ln in res.lines]
-        return dc_replace(res, lines=lines)
-
-    monkeypatch.setattr(ppbatch.pp, "evaluate_board", without_sink)
+    design, nominal = _sink_current_only_nominal(monkeypatch)
     mc = whatif.monte_carlo(design, 40, seed=3, results=nominal)
     (row,) = [c for c in mc.checks if c.id == "sink-current"]
     assert row.absent == 40 and row.fails == 0
@@ -993,7 +986,6 @@ def test_monte_carlo_counts_the_boards_a_check_is_absent_from(monkeypatch):
     text = " ".join(mc.format_text(limit=None).split())
     assert "absent from 40 boards" in text
     # and the report's Monte Carlo table, whose pass fraction would read 100 % alone
-    from pinlib.present.review.montecarlo import _mc_cells, _mc_rows
     (cells,) = [_mc_cells(r) for r in _mc_rows(mc) if "Sink current" in r["where"]]
     assert cells[1] == "100.00% (absent from 40 boards)"
     # every other check is on every board
