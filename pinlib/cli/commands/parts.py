@@ -241,16 +241,21 @@ def _kind(lib, pid) -> str:
 
 
 def _table(rows: list[list[str]], header: list[str], keep: int = 2,
-           left_out: dict[str, str | list[str]] | None = None) -> str:
+           left_out: dict[str, str | list[str]] | None = None,
+           least: dict[str, int] | None = None, drop: list[str] | None = None) -> str:
     """The table fitted to the terminal's width (COLUMNS; piped output whole): columns that do not
     fit are left out and named; a long cell wraps inside its column.  ``left_out``: a line
     (or lines, each wrapped with its rest indented) to print for a column when it is left
-    out (what it would have told)."""
+    out (what it would have told).  ``least`` and ``drop``, by column title: the
+    :func:`~pinlib.core.texttable.fit_table` options."""
     from pinlib.core.texttable import fit_table
     from pinlib.present.terminal import table_width, wrap
 
     cols = table_width()
-    lines, dropped = fit_table(header, rows, cols, keep=keep, rule=True)
+    lines, dropped = fit_table(
+        header, rows, cols, keep=keep, rule=True,
+        least={header.index(k): v for k, v in (least or {}).items()},
+        drop=None if drop is None else [header.index(k) for k in drop])
     for column, note in (left_out or {}).items():
         if column in dropped and note:
             if isinstance(note, str):
@@ -264,6 +269,10 @@ def _table(rows: list[list[str]], header: list[str], keep: int = 2,
 
 
 # --- list ------------------------------------------------------------------------------
+
+#: The narrowest the title column of 'parts list' wraps to: a phrase a line.
+_TITLE_WIDTH = 24
+
 
 def _run_list(args) -> int:
     from pinlib.core.quantity import parse
@@ -309,8 +318,12 @@ def _run_list(args) -> int:
             for p in chosen]
     overrides = [p.id for p in chosen if p.id in lib.overrides]
     note = M.OVERRIDES_LEFT_OUT.format(ids=", ".join(overrides)) if overrides else None
-    print(_table(rows, ["id", "category", "supply", "pin functions", "kind", "title"], keep=4,
-                 left_out={"kind": note}))
+    # the title is kept, wrapped, and the codes beside it give way: kind first, then the
+    # pin functions (--function filters by them), the supply, the category
+    print(_table(rows, ["id", "category", "supply", "pin functions", "kind", "title"],
+                 left_out={"kind": note},
+                 least={"title": _TITLE_WIDTH, "pin functions": 16, "supply": 13, "kind": 9},
+                 drop=["kind", "pin functions", "supply", "category"]))
     return 0
 
 
