@@ -409,6 +409,29 @@ def test_record_fits_80_columns_and_shows_what_it_wrote(lib, capsys, monkeypatch
     assert "recorded pins.sclk.c_in = 5 pF (datasheet:" in out
 
 
+@pytest.mark.parametrize(("field", "typed", "typ", "echoed"), [
+    # invented test data; each echo derived: the value as quantity.parse reads it, in
+    # format_si's writing (a space before the unit, an SI prefix)
+    ("timing.f_max", "1MHz", None, "timing.f_max = 1 MHz ("),
+    ("timing.f_max", "1.234e6 Hz", None, "timing.f_max = 1.234 MHz ("),  # not rounded
+    ("sclk.c_in", "6.80pF", "3000fF", "pins.sclk.c_in = 6.8 pF, typ 3 pF ("),
+    ("timing.t_valid", "0.0000000071 s", None, "timing.t_valid = 7.1 ns ("),
+    ("sclk.v_il", "0.3VDD", None, "pins.sclk.v_il = 0.3 VDD ("),
+    ("sclk.v_il", "800mV", None, "pins.sclk.v_il = 800 mV ("),
+])
+def test_record_echoes_the_value_as_pinlib_read_it(lib, capsys, field, typed, typ, echoed):
+    # 'recorded timing.f_max = 1MHz' echoed the text as typed, not what pinlib made of it
+    _, team = lib
+    run(capsys, "parts", "new", "flash-e", "--from", "flash", "--into", "team")
+    code, out, err = run(capsys, "parts", "record", "flash-e", field, typed,
+                         "--source", "rev B, table 6", "--library", "team",
+                         *(["--typ", typ] if typ else []))
+    assert code == 0, err
+    assert f"recorded {echoed}datasheet: rev B, table 6)" in " ".join(out.split()), out
+    # the file keeps the text as it was written
+    assert f'"{typed}"' in (team / "flash-e.toml").read_text(encoding="utf-8")
+
+
 def test_new_fits_its_lines_to_80_columns_and_the_next_command_still_pastes(
         lib, capsys, monkeypatch):
     # a 50-character id in a folder not yet a library: the "next:" command ran to 125

@@ -568,16 +568,50 @@ def _run_record(args) -> int:
     was = _value_before(lib, args.id, ".".join(keys), typ_given=args.typ is not None)
     path = record_value(lib, args.id, args.field, args.value, args.source,
                         basis=args.basis, typ=args.typ)
-    # as written to the file: stripped, and within the width
-    typ = f", typ {args.typ.strip()}" if args.typ else ""
-    print(fitted(f"recorded {'.'.join(keys)} = {args.value.strip()}{typ} ({args.basis}: "
+    after = _load(args)
+    # the value as pinlib read it from the file ('1MHz' is 1 MHz), within the width
+    value, typ = _as_read(after, args.id, keys, args.value, args.typ)
+    typ = f", typ {typ}" if typ else ""
+    print(fitted(f"recorded {'.'.join(keys)} = {value}{typ} ({args.basis}: "
                  f"{one_line(args.source)}) in {_rel(path)}"))
     if was is not None:
         # what the record replaces, so that a measured value or a typical one written
         # over is said, not lost in silence
         print(fitted("  " + was))
-    _warn_implausible(_load(args), args.id, ".".join(keys))
+    _warn_implausible(after, args.id, ".".join(keys))
     return 0
+
+
+#: Significant digits of a value echoed as read: as many as a datasheet gives, so that
+#: '1.234 MHz' is not shown rounded to '1.23 MHz' (the notebook fields show 6 too).
+_READ_DIGITS = 6
+
+
+def _as_read(lib, pid: str, keys, value: str, typ: str | None) -> tuple[str, str | None]:
+    """The value (and typical value) of field ``keys`` of part ``pid`` as the library
+    read it: its SI number with a prefix and a space before the unit (``"1MHz"`` ->
+    ``"1 MHz"``), a threshold relative to the supply as ``"0.3 VDD"``; the text as
+    written (stripped) where the part holds no number for it."""
+    from pinlib.core.errors import PinlibError
+    from pinlib.core.quantity import Threshold, format_si, format_threshold
+    from pinlib.library.values import Sourced
+
+    def shown(x, unit: str, text: str | None) -> str | None:
+        if isinstance(x, Threshold):
+            return format_threshold(x)
+        if isinstance(x, (int, float)) and not isinstance(x, bool):
+            return format_si(x, unit, digits=_READ_DIGITS)
+        return None if text is None else text.strip()
+
+    try:
+        item = next((x for path, x in _walk(lib.get(pid))
+                     if tuple(map(str, path)) == tuple(keys) and isinstance(x, Sourced)), None)
+    except PinlibError:
+        item = None  # the library's warning names what is wrong
+    if item is None:
+        return value.strip(), None if typ is None else typ.strip()
+    return (shown(item.value, item.unit, value) or value.strip(),
+            None if typ is None else shown(item.typ, item.unit, typ))
 
 
 def _value_before(lib, pid: str, field: str, typ_given: bool = False) -> str | None:
