@@ -655,6 +655,29 @@ def test_check_reports_every_problem(lib, capsys, tmp_path):
     assert {p["field"] for p in data["problems"]} == {"pins.sda.c_in", "extends", None}
 
 
+def test_check_lists_problems_by_file_then_line(lib, capsys):
+    # invented: a file whose provenance names no source (line 6) and whose c_in has a
+    # unit of inductance (line 10), and a second file with a problem: each kind of problem
+    # was listed in turn (the c_in at line 10 before the source at line 6), not in the
+    # order of the lines
+    _, team = lib
+    sourceless = EEPROM.replace('extends = "base"\n',
+                                'extends = "base"\nprovenance = { basis = "datasheet" }\n')
+    (team / "b.toml").write_text(sourceless.replace('id = "eeprom"', 'id = "b"')
+                                 .replace('"8 pF"', '"8 pH"'), encoding="utf-8")
+    (team / "a.toml").write_text(sourceless.replace('id = "eeprom"', 'id = "a"'),
+                                 encoding="utf-8")
+    code, out, _ = run(capsys, "parts", "check", "team")
+    lines = [ln for ln in out.splitlines() if ln.startswith("team/")]
+    assert code == 1 and [ln.split(",")[0] for ln in lines] == [
+        "team/a.toml:7", "team/b.toml:7", "team/b.toml:11"], out
+    assert [ln.split("'")[1] for ln in lines] == ["provenance.source", "provenance.source",
+                                                   "pins.sda.c_in"]
+    code, out, _ = run(capsys, "parts", "check", "team", "--json")
+    assert [(p["file"], p["line"]) for p in json.loads(out)["problems"]] == [
+        ("team/a.toml", 7), ("team/b.toml", 7), ("team/b.toml", 11)]
+
+
 def test_check_folder_reports_a_broken_parent(lib, capsys, tmp_path):
     builtin, _ = lib
     (builtin / "base.toml").write_text(BASE.replace('c_in = "10 pF"', 'c_in = "10 pH"'),
