@@ -97,3 +97,42 @@ def test_a_word_longer_than_its_cell_breaks_after_a_hyphen():
     # a word without a hyphen is still broken where the width falls
     lines, _ = fit_table(["n", "x"], [["a", "abcdefghijklmnopqrstuvwxyz"]], 13, keep=2)
     assert [ln[3:] for ln in lines[1:]] == ["abcdefghij", "klmnopqrst", "uvwxyz"], lines
+
+
+def test_a_number_keeps_its_unit_in_a_wrapped_cell():
+    # invented test data, as 'parts list' met it at 80 columns: a title column of 26
+    # characters read "converter, I2C, 2.0 to 5.5" / "V, with ready output" (a range
+    # is held whole as the wrapped lines of every other text hold it)
+    text = "Analog-to-digital converter, I2C, 2.0 to 5.5 V, with ready output"
+    lines, _ = fit_table(["id", "title"], [["adc", text]], 31, keep=2)
+    cell = [ln[5:] for ln in lines[1:]]
+    assert cell == ["Analog-to-digital", "converter, I2C,", "2.0 to 5.5 V, with ready",
+                    "output"], cell
+    # a number, its unit and the word before it longer than the cell part at spaces
+    lines, _ = fit_table(["n", "x"], [["a", "SMBus 100 kHz"]], 11, keep=2)
+    assert [ln[3:] for ln in lines[1:]] == ["SMBus", "100 kHz"], lines
+    assert all("\u00a0" not in ln for ln in lines)
+
+
+def test_wrapping_columns_share_the_room_and_are_dropped_last():
+    # invented test data: 'least' lets a column of text wrap rather than be left out
+    head = ["id", "code", "notes", "title"]
+    rows = [["a", "x" * 10, "one two three four five six", "a title of some words, " * 3],
+            ["b", "y", "seven", "short"]]
+    lines, dropped = fit_table(head, rows, 40, least={3: 12}, drop=[2, 1], rule=True)
+    assert dropped == ["notes"] and lines[0].split() == ["id", "code", "title"]
+    assert max(len(ln) for ln in lines) == len(lines[1]) == 40  # the rule: the room used
+    # with no 'least' the same table loses its last column first
+    lines, dropped = fit_table(head, rows, 40, keep=1)
+    assert dropped[-1] == "title"
+    # the room left over goes to the wrapping column cut shortest, in turn
+    lines, dropped = fit_table(head, rows, 60, least={2: 6, 3: 12}, drop=[2, 1], rule=True)
+    assert dropped == [] and len(lines[1]) == 60
+    # 60 - (2 + 10 + 3 gaps of 2) = 42 for the two, 6 + 12 at least: the 24 left all go
+    # to the title, cut short by 57 against the notes' 21 (derived: 69 - 36 = 33 > 21)
+    assert [len(r) for r in lines[1].split()] == [2, 10, 6, 36]
+    # with room to spare a column a fair share makes whole is laid out whole: at 90,
+    # 54 to share, 27 each, the notes' 21 fit (derived: 90 - 36 at least - 21 = 33 more
+    # for the title)
+    lines, _ = fit_table(head, rows, 90, least={2: 6, 3: 12}, drop=[2, 1], rule=True)
+    assert [len(r) for r in lines[1].split()] == [2, 10, 27, 45]

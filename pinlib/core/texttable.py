@@ -24,15 +24,19 @@ from __future__ import annotations
 import re
 import textwrap
 
+from pinlib.core.wrapping import NBSP, glue
+
 __all__ = ["fit_table"]
 
 _GAP = "  "
 _NARROWEST = 8  # a wrapped column keeps at least this many characters
+_SPACES = re.compile(r"[^\S\u00a0]+")  # the spaces a cell may break at (not NBSP)
 
 
 def fit_table(header: list[str], rows: list[list[str]], width: int | None = None, *,
               keep: int = 1, rule: bool = False,
-              names: int | None = 0) -> tuple[list[str], list[str]]:
+              names: int | None = 0, least: dict[int, int] | None = None,
+              drop: list[int] | None = None) -> tuple[list[str], list[str]]:
     """The table's lines, and the names of the columns left out to fit ``width``.
 
     Parameters
@@ -50,6 +54,15 @@ def fit_table(header: list[str], rows: list[list[str]], width: int | None = None
     names : int or None, optional
         The column of the names a row is found by, never broken (one of the first
         ``keep``). [1]
+    least : dict of int to int, optional
+        Columns of text that wraps, and the width each may wrap down to before a column
+        is left out.  The room left over makes whole the columns a fair share of it
+        would, then widens the others, the one most cut short first (listed first among
+        equals).  Without it a column is dropped when the table at
+        its natural widths does not fit. [1]
+    drop : list of int, optional
+        The columns that may be left out, in the order they go (default: from the
+        last, down to the first ``keep``). [1]
     """
     cols = list(range(len(header)))
     cells = [list(map(str, header))] + [list(map(str, r)) for r in rows]
@@ -66,11 +79,37 @@ def fit_table(header: list[str], rows: list[list[str]], width: int | None = None
         natural[names] = max([len(c[names]) for c in cells if len(c[names]) <= width // 2]
                              or [1])
     dropped = []
+    least = least or {}
+    # the widths columns are dropped by: text that wraps counted as narrow as it may go
+    floor = [min(natural[i], least.get(i, natural[i])) for i in cols]
+    order = list(drop) if drop is not None else cols[max(keep, 1):][::-1]
     if width is not None:
-        while len(cols) > max(keep, 1) and total(cols, natural) > width:
-            dropped.append(header[cols.pop()])
+        while order and total(cols, floor) > width:
+            gone = order.pop(0)
+            if gone in cols:
+                cols.remove(gone)
+                dropped.append(gone)
     widths = list(natural)
-    if width is not None:
+    if width is not None and least and total(cols, floor) <= width:
+        widths = list(floor)
+        spare = width - total(cols, widths)
+        wrapping = [i for i in least if i in cols]
+        while True:  # first the columns the room makes whole at a fair share each
+            short = [i for i in wrapping if widths[i] < natural[i]]
+            whole = [i for i in short if natural[i] - widths[i] <= spare / len(short)]
+            if not whole:
+                break
+            for i in whole:
+                spare -= natural[i] - widths[i]
+                widths[i] = natural[i]
+        while spare > 0:
+            short = [i for i in wrapping if widths[i] < natural[i]]
+            if not short:
+                break
+            most = max(short, key=lambda i: natural[i] - widths[i])
+            widths[most] += 1
+            spare -= 1
+    if width is not None and total(cols, widths) > width:
         # the last column (most often free text) gives way first, then the widest
         last = cols[-1]
         while total(cols, widths) > width and widths[last] > max(_NARROWEST, 24):
@@ -105,18 +144,22 @@ def fit_table(header: list[str], rows: list[list[str]], width: int | None = None
                                  for w, i in zip(wrapped, cols, strict=True)).rstrip())
         if k == 0 and rule:
             out.append(_GAP.join("-" * widths[i] for i in cols))
-    return out, dropped[::-1]
+    return out, [header[i] for i in sorted(dropped)]
 
 
 def _wrap_cell(text: str, width: int) -> list[str]:
     """A cell's lines: broken between words, never at the hyphen of a word that fits (an
     id, 'i2c-sda'); a word longer than the cell is broken after its hyphens first
     ("general-" / "purpose", where it read "gen" / "eral-purpose"), then where the width
-    falls."""
-    words = text.split()
+    falls.  A number stays on the line of its unit where the two fit the cell
+    (:func:`pinlib.core.wrapping.glue`)."""
+    words = [w if len(w) <= width else w.replace(NBSP, " ")
+             for w in _SPACES.split(glue(text.strip())) if w]
+    text = " ".join(words)
+    words = _SPACES.split(text)
     if all(len(w) <= width for w in words):
-        return textwrap.wrap(text, width, break_long_words=True,
-                             break_on_hyphens=False) or [""]
+        return [ln.replace(NBSP, " ") for ln in textwrap.wrap(
+            text, width, break_long_words=True, break_on_hyphens=False)] or [""]
     chunks: list[tuple[str, bool]] = []  # (text, a space before it)
     for word in words:
         if len(word) <= width:
@@ -135,4 +178,4 @@ def _wrap_cell(text: str, width: int) -> list[str]:
         else:
             lines.append(line)
             line = chunk
-    return [ln for ln in lines if ln] + [line]
+    return [ln.replace(NBSP, " ") for ln in lines if ln] + [line.replace(NBSP, " ")]

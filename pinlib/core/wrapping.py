@@ -11,7 +11,7 @@ from __future__ import annotations
 import re
 import textwrap
 
-__all__ = ["wrap", "NBSP"]
+__all__ = ["wrap", "glue", "NBSP"]
 
 #: A number stays on one line with its unit, its relation (≤, ≥, <, >) and the word
 #: before it ("tr 242 ns", "margin < -999 %").
@@ -19,6 +19,12 @@ _GLUE = re.compile(r"(?<=\d) (?=[^\W\d_]|%|Ω|µ|°)|(?<=[≤≥<>]) (?=[+−-]?
                    r"|(?<=[−+]) (?=\d)|(?<=[^\W\d_]) (?=[+−-]?\d|[≤≥<>] [+−-]?\d)")
 #: The no-break space that holds two words together while wrapping (a space again after).
 NBSP = "\u00a0"
+
+
+def glue(text: str) -> str:
+    """``text`` with the spaces that must not break (a number's before its unit, its
+    relation's, its name's) made :data:`NBSP`; a space again after wrapping."""
+    return _GLUE.sub(NBSP, text)
 
 
 def wrap(text: str, cols: int, indent: str = "", subsequent: str = "    ", *,
@@ -30,7 +36,7 @@ def wrap(text: str, cols: int, indent: str = "", subsequent: str = "    ", *,
     name; with ``break_long=True`` it is broken where the width falls instead, and with
     ``whole_long=True`` it is left whole past the width (Markdown, whose viewers join
     the lines of a paragraph with a space: a word cut in two would read as two)."""
-    glued = _GLUE.sub(NBSP, text)
+    glued = glue(text)
     width = max(10, cols)
     lines = textwrap.wrap(glued, width, initial_indent=indent,
                           subsequent_indent=indent + subsequent, break_on_hyphens=False,

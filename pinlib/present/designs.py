@@ -105,7 +105,7 @@ def format_many(summaries, cols: int | None = None) -> str:
               for k in ("pass", "warn", "fail", "error")}
     n = len(summaries)
     out.append("")
-    closing = (f"{n} design{'s' if n != 1 else ''}: {counts['pass']} pass, "
+    closing = (f"{n} design{plural_s(n)}: {counts['pass']} pass, "
                f"{counts['warn']} warn, {counts['fail']} fail, {counts['error']} not checked; "
                "'pinlib check DESIGN' shows one in full")
     out += wrap(closing, cols) if cols else [closing]
@@ -119,8 +119,8 @@ def format_uses(part_id: str, uses: list[dict], n_designs: int) -> str:
         via = "" if len(u["via"]) == 1 else "  (" + " → ".join(u["via"]) + ")"
         out.append(f"{u['path']}  bus {u['bus']}  {u['ref']}  {u['part']}{via}")
     found = len({u["path"] for u in uses})
-    out.append(f"{part_id}: {len(uses)} position{'s' if len(uses) != 1 else ''} in {found} "
-               f"of {n_designs} design{'s' if n_designs != 1 else ''}")
+    out.append(f"{part_id}: {len(uses)} position{plural_s(len(uses))} in {found} "
+               f"of {n_designs} design{plural_s(n_designs)}")
     return "\n".join(out) + "\n"
 
 

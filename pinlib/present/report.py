@@ -19,7 +19,7 @@ from __future__ import annotations
 import math
 import re
 
-from pinlib.core.labels import check_label, humanize, path_label
+from pinlib.core.labels import check_label, humanize, path_label, plural_s
 from pinlib.model.result import (
     STATUSES,
     BusResult,
@@ -296,7 +296,7 @@ def _closing(result: DesignResult) -> str:
             f"{n['fail']} fail on {buses} bus{'es' if buses != 1 else ''}")
     pairs = len(result.couplings)
     if pairs:
-        text += f" and {pairs} coupling{'s' if pairs != 1 else ''}"
+        text += f" and {pairs} coupling{plural_s(pairs)}"
     return text
 
 

@@ -8,7 +8,7 @@ import sys
 from pinlib.cli import SUMMARIES
 from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
-from pinlib.core.labels import counted
+from pinlib.core.labels import counted, plural_s
 
 __all__ = ["add_parser", "run"]
 
@@ -180,10 +180,10 @@ def _saved_line(summaries, shown: int = 3) -> str:
         names = ", ".join(saved[:shown]) + f" and {len(saved) - shown} more"
     else:
         names = ", ".join(saved)
-    line = (f"saved {len(saved)} snapshot{'s' if len(saved) != 1 else ''}, each beside its "
+    line = (f"saved {len(saved)} snapshot{plural_s(len(saved))}, each beside its "
             f"design: {names}" if saved else "saved no snapshot")
     if missed:
-        line += f"; {missed} design{'s' if missed != 1 else ''} not saved (above)"
+        line += f"; {missed} design{plural_s(missed)} not saved (above)"
     return line
 
 

@@ -241,16 +241,21 @@ def _kind(lib, pid) -> str:
 
 
 def _table(rows: list[list[str]], header: list[str], keep: int = 2,
-           left_out: dict[str, str | list[str]] | None = None) -> str:
+           left_out: dict[str, str | list[str]] | None = None,
+           least: dict[str, int] | None = None, drop: list[str] | None = None) -> str:
     """The table fitted to the terminal's width (COLUMNS; piped output whole): columns that do not
     fit are left out and named; a long cell wraps inside its column.  ``left_out``: a line
     (or lines, each wrapped with its rest indented) to print for a column when it is left
-    out (what it would have told)."""
+    out (what it would have told).  ``least`` and ``drop``, by column title: the
+    :func:`~pinlib.core.texttable.fit_table` options."""
     from pinlib.core.texttable import fit_table
     from pinlib.present.terminal import table_width, wrap
 
     cols = table_width()
-    lines, dropped = fit_table(header, rows, cols, keep=keep, rule=True)
+    lines, dropped = fit_table(
+        header, rows, cols, keep=keep, rule=True,
+        least={header.index(k): v for k, v in (least or {}).items()},
+        drop=None if drop is None else [header.index(k) for k in drop])
     for column, note in (left_out or {}).items():
         if column in dropped and note:
             if isinstance(note, str):
@@ -264,6 +269,10 @@ def _table(rows: list[list[str]], header: list[str], keep: int = 2,
 
 
 # --- list ------------------------------------------------------------------------------
+
+#: The narrowest the title column of 'parts list' wraps to: a phrase a line.
+_TITLE_WIDTH = 24
+
 
 def _run_list(args) -> int:
     from pinlib.core.quantity import parse
@@ -309,8 +318,12 @@ def _run_list(args) -> int:
             for p in chosen]
     overrides = [p.id for p in chosen if p.id in lib.overrides]
     note = M.OVERRIDES_LEFT_OUT.format(ids=", ".join(overrides)) if overrides else None
-    print(_table(rows, ["id", "category", "supply", "pin functions", "kind", "title"], keep=4,
-                 left_out={"kind": note}))
+    # the title is kept, wrapped, and the codes beside it give way: kind first, then the
+    # pin functions (--function filters by them), the supply, the category
+    print(_table(rows, ["id", "category", "supply", "pin functions", "kind", "title"],
+                 left_out={"kind": note},
+                 least={"title": _TITLE_WIDTH, "pin functions": 16, "supply": 13, "kind": 9},
+                 drop=["kind", "pin functions", "supply", "category"]))
     return 0
 
 
@@ -555,16 +568,50 @@ def _run_record(args) -> int:
     was = _value_before(lib, args.id, ".".join(keys), typ_given=args.typ is not None)
     path = record_value(lib, args.id, args.field, args.value, args.source,
                         basis=args.basis, typ=args.typ)
-    # as written to the file: stripped, and within the width
-    typ = f", typ {args.typ.strip()}" if args.typ else ""
-    print(fitted(f"recorded {'.'.join(keys)} = {args.value.strip()}{typ} ({args.basis}: "
+    after = _load(args)
+    # the value as pinlib read it from the file ('1MHz' is 1 MHz), within the width
+    value, typ = _as_read(after, args.id, keys, args.value, args.typ)
+    typ = f", typ {typ}" if typ else ""
+    print(fitted(f"recorded {'.'.join(keys)} = {value}{typ} ({args.basis}: "
                  f"{one_line(args.source)}) in {_rel(path)}"))
     if was is not None:
         # what the record replaces, so that a measured value or a typical one written
         # over is said, not lost in silence
         print(fitted("  " + was))
-    _warn_implausible(_load(args), args.id, ".".join(keys))
+    _warn_implausible(after, args.id, ".".join(keys))
     return 0
+
+
+#: Significant digits of a value echoed as read: as many as a datasheet gives, so that
+#: '1.234 MHz' is not shown rounded to '1.23 MHz' (the notebook fields show 6 too).
+_READ_DIGITS = 6
+
+
+def _as_read(lib, pid: str, keys, value: str, typ: str | None) -> tuple[str, str | None]:
+    """The value (and typical value) of field ``keys`` of part ``pid`` as the library
+    read it: its SI number with a prefix and a space before the unit (``"1MHz"`` ->
+    ``"1 MHz"``), a threshold relative to the supply as ``"0.3 VDD"``; the text as
+    written (stripped) where the part holds no number for it."""
+    from pinlib.core.errors import PinlibError
+    from pinlib.core.quantity import Threshold, format_si, format_threshold
+    from pinlib.library.values import Sourced
+
+    def shown(x, unit: str, text: str | None) -> str | None:
+        if isinstance(x, Threshold):
+            return format_threshold(x)
+        if isinstance(x, (int, float)) and not isinstance(x, bool):
+            return format_si(x, unit, digits=_READ_DIGITS)
+        return None if text is None else text.strip()
+
+    try:
+        item = next((x for path, x in _walk(lib.get(pid))
+                     if tuple(map(str, path)) == tuple(keys) and isinstance(x, Sourced)), None)
+    except PinlibError:
+        item = None  # the library's warning names what is wrong
+    if item is None:
+        return value.strip(), None if typ is None else typ.strip()
+    return (shown(item.value, item.unit, value) or value.strip(),
+            None if typ is None else shown(item.typ, item.unit, typ))
 
 
 def _value_before(lib, pid: str, field: str, typ_given: bool = False) -> str | None:

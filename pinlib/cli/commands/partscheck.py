@@ -74,7 +74,10 @@ def run_check(args, load) -> int:
     once: dict = {}
     for p in problems:
         once.setdefault((type(p), p.message), p)
-    problems = list(once.values())
+    # by file, then line, then field: a file's problems in the order of its lines (a
+    # problem of the whole file, with no line, first; one of no file last)
+    problems = sorted(once.values(), key=lambda p: (
+        p.file is None, p.file or "", p.line or 0, p.field or ""))
     if args.json:
         print(json.dumps({"checked": scope, "files": n_files,
                           "problems": [p.to_dict() for p in problems]},

@@ -23,6 +23,7 @@ from pinlib.cli import SUMMARIES
 from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
+from pinlib.core.labels import counted
 
 if TYPE_CHECKING:
     import subprocess
@@ -239,7 +240,7 @@ def run(args) -> int:
                                   hint=M.SERVER_OUTPUT_HINT)
             time.sleep(0.2)
         books = sorted(folder.glob("*.ipynb"))
-        what = "1 workbook" if len(books) == 1 else f"{len(books)} workbooks"
+        what = counted("{n} workbook{s}", len(books))
         print(f"Serving {what} of {folder} at {url}", flush=True)
         for book in books:
             print(f"  {url}voila/render/{quote(book.name)}", flush=True)

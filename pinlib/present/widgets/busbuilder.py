@@ -12,6 +12,7 @@ import tomlkit
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError, WriteError
+from pinlib.core.labels import plural_s
 from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS, protocol
 from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import atomic_write, tomllib
@@ -554,7 +555,7 @@ class BusBuilder(_Panel):
             self.bench_line.value = keep or next(iter(lines), BUILT_LINE[1])
         self.bench_file_error.value = ""
         name = e(Path(str(path)).name)
-        said = (f"{len(lines)} line{'' if len(lines) == 1 else 's'} of <b>{name}</b> offered "
+        said = (f"{len(lines)} line{plural_s(len(lines))} of <b>{name}</b> offered "
                 "under Line." if lines else
                 f"<b>{name}</b> has no line a rise time gives the bus capacitance of.")
         if refused:

@@ -18,7 +18,7 @@ import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
-from pinlib.core.labels import check_label, figure_label, short_label
+from pinlib.core.labels import check_label, figure_label, plural_s, short_label
 from pinlib.core.protocols import is_open_drain
 from pinlib.core.quantity import format_si
 from pinlib.engines.dispatch import check_design
@@ -378,9 +378,9 @@ class SwapExplorer(_Panel):
                 continue
             rows = self._figure_rows(figures)
             kind = "Bus" if any(b.id == bus for b in self.design.buses) else "Place"
-            head = (f"{kind} <b>{e(bus)}</b>: {len(status)} check"
-                    f"{'' if len(status) == 1 else 's'} changed status, {len(rows)} figure"
-                    f"{'' if len(rows) == 1 else 's'} moved more than {pct}")
+            head = (f"{kind} <b>{e(bus)}</b>: {len(status)} check{plural_s(len(status))} "
+                    f"changed status, {len(rows)} figure{plural_s(len(rows))} moved more "
+                    f"than {pct}")
             body = ""
             if status:
                 body += "<ul>" + "".join(self._status_item(c) for c in status) + "</ul>"
@@ -394,7 +394,7 @@ class SwapExplorer(_Panel):
             items = "".join("<li>" + "<br>".join(e(line) for line in pc.lines()) + "</li>"
                             for pc in cl.part_changes)
             out.append(f"<details><summary>Part values behind the change "
-                       f"({len(cl.part_changes)} part{'' if len(cl.part_changes) == 1 else 's'})"
+                       f"({len(cl.part_changes)} part{plural_s(len(cl.part_changes))})"
                        f"</summary><ul>{items}</ul></details>")
         return block("".join(out))
 

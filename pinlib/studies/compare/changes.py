@@ -10,7 +10,7 @@ from typing import Any
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
-from pinlib.core.labels import check_label, figure_label, shown_figures
+from pinlib.core.labels import check_label, figure_label, plural_s, shown_figures
 from pinlib.core.quantity import Threshold, format_si, format_threshold
 from pinlib.core.valueclass import value_class
 from pinlib.model.result import beyond_shown, signed_margin_text
@@ -337,7 +337,7 @@ class PartChange:
         for v in self.values:
             if not v.connected:
                 counts[v.pin] = counts.get(v.pin, 0) + 1
-        return [f"{self.ref} {pin.upper()}: {n} value{'s' if n != 1 else ''} "
+        return [f"{self.ref} {pin.upper()}: {n} value{plural_s(n)} "
                 f"differ{'s' if n == 1 else ''}, a pin no bus connects"
                 for pin, n in counts.items()]
 
@@ -393,7 +393,7 @@ class ChangeList:
 
     def group_lines(self) -> list[str]:
         """``bus i2c (23 checks) is absent now``, ``bus sensors-bus (23 checks) is new``."""
-        return [f"{kind} {gid} ({n} check{'s' if n != 1 else ''}) is "
+        return [f"{kind} {gid} ({n} check{plural_s(n)}) is "
                 f"{'absent now' if side == 'absent' else 'new'}"
                 for side, kind, gid, n in self.groups]
 
