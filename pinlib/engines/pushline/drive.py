@@ -12,7 +12,12 @@ from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
 from pinlib.engines import memo
 from pinlib.engines.pushline.pins import Endpoint, Flight
-from pinlib.engines.pushline.rules import _REF_LEVEL, PULLUP_RISE_INDUCTANCE_LIMIT
+from pinlib.engines.pushline.rules import (
+    _REF_LEVEL,
+    LUMPED_INDUCTANCE_LIMIT,
+    PULLUP_RISE_INDUCTANCE_LIMIT,
+    SPREAD_INDUCTANCE_LIMIT,
+)
 from pinlib.engines.pushline.sections import Stretch, line_model, needs_distributed
 from pinlib.engines.pushline.waves import EdgeWave, simulate_edge, solve_edges
 from pinlib.library.schema import Pin
@@ -350,8 +355,12 @@ class EdgePlan:
 
 def edge_plan(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver,
               loads: Sequence[Endpoint], rs: float, extra_c: float, *, long: bool,
-              r_pullup: float | None = None, v_pullup: float | None = None) -> EdgePlan:
-    """The edges :func:`drive_case` solves for these inputs (same arguments)."""
+              r_pullup: float | None = None, v_pullup: float | None = None,
+              spread: bool = False) -> EdgePlan:
+    """The edges :func:`drive_case` solves for these inputs (same arguments); ``spread``:
+    a push-pull driver's loads sit at more than one point of a route
+    (:func:`~pinlib.engines.pushline.routes.pins_spread`), which holds its lumping to
+    :data:`~pinlib.engines.pushline.rules.SPREAD_INDUCTANCE_LIMIT`."""
     c_far = sum(p.c_in for p in loads) + extra_c
     if driver.pin.drive == "open-drain":
         rp = float(r_pullup)
@@ -377,7 +386,7 @@ def edge_plan(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver,
                          v_hi, v_lo), distributed, rise_dist, c_all, v_lo, v_hi, own)
     vdd = driver.vdd
     distributed = needs_distributed(stretches, min(model.r_rise, model.r_fall) + rs, c_far,
-                                    long)
+                                    long, _limit(spread))
     return EdgePlan((model.r_rise + rs, model.t_ramp_rise, c_far, 0.0, vdd),
                     (model.r_fall + rs, model.t_ramp_fall, c_far, vdd, 0.0), distributed,
                     distributed, c_far, 0.0, vdd)
@@ -394,15 +403,22 @@ def _open_drain_levels(driver: Endpoint, loads: Sequence[Endpoint], model: drv.D
     return v_hi * r_sink / (r_sink + rp), v_hi, r_sink * rp / (r_sink + rp)
 
 
+def _limit(spread: bool) -> float:
+    """The largest ``L / (R^2 C)`` a push-pull line is lumped at: the pins' capacitance
+    spread along a route rings through the line's inductance between them."""
+    return SPREAD_INDUCTANCE_LIMIT if spread else LUMPED_INDUCTANCE_LIMIT
+
+
 def _fast_distributed(stretches: Sequence[Stretch], fast: drv.Driver, rs: float,
-                      c_far: float, long: bool) -> bool:
+                      c_far: float, long: bool, spread: bool = False) -> bool:
     """Whether the fast corner's edges solve the line as distributed: it is electrically
     long for them when it is for the slow corner or against the fast corner's own edge
-    into the pins."""
+    into the pins (``spread``: as :func:`edge_plan`'s)."""
     alone = min(float(drv.edge_time(fast.r_rise, fast.t_ramp_rise, c_far)),
                 float(drv.edge_time(fast.r_fall, fast.t_ramp_fall, c_far)))
     long = long or line_model(stretches, alone)[0]
-    return needs_distributed(stretches, min(fast.r_rise, fast.r_fall) + rs, c_far, long)
+    return needs_distributed(stretches, min(fast.r_rise, fast.r_fall) + rs, c_far, long,
+                             _limit(spread))
 
 
 def _fast_edges(stretches: Sequence[Stretch], fast: drv.Driver, rs: float, c_far: float,
@@ -431,15 +447,16 @@ def route_case(net: RouteNet, stretches: Sequence[Stretch], driver: Endpoint,
     devices whose edges the checks read (the line's receivers); the records of the other
     points are not kept (made again if read), None keeps every point's.
     """
-    from pinlib.engines.pushline.routes import node_caps, tree_edges
+    from pinlib.engines.pushline.routes import node_caps, pins_spread, tree_edges
 
     caps = node_caps(net, {p.ref: p.c_in for p in loads}, extra_c)
     src = net.node(driver.ref)
     delays = net.delays_from(src)
     far = max((net.node(p.ref) for p in loads), key=delays.__getitem__, default=src)
     keep = None if sensed is None else [far, *(net.node(r) for r in sensed)]
+    spread = pins_spread(net, [p.ref for p in loads], extra_c)
     plan = edge_plan(stretches, driver, model, loads, rs, extra_c, long=long,
-                     r_pullup=r_pullup, v_pullup=v_pullup)
+                     r_pullup=r_pullup, v_pullup=v_pullup, spread=spread)
     c_far, distributed, v_lo, v_hi = plan.c_far, plan.distributed, plan.v_low, plan.v_high
     points = {}
     # an open-drain sink's own pin is on the net whether it sinks or not: the pull-up
@@ -454,7 +471,7 @@ def route_case(net: RouteNet, stretches: Sequence[Stretch], driver: Endpoint,
     fast = None
     if driver.pin.drive != "open-drain" and model.fast is not None:
         f = model.fast
-        f_dist = _fast_distributed(stretches, f, rs, c_far, long)
+        f_dist = _fast_distributed(stretches, f, rs, c_far, long, spread)
         fast = {"rise": tree_edges(net, src, f.r_rise + rs, f.t_ramp_rise, caps, 0.0, v_hi,
                                    distributed=f_dist, edge="rise", keep=keep),
                 "fall": tree_edges(net, src, f.r_fall + rs, f.t_ramp_fall, caps, v_hi, 0.0,

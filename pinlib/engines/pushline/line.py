@@ -38,6 +38,7 @@ from pinlib.engines.pushline.rules import (
     LUMPED_RULE,
     PULLUP_RISE_RULE,
     RHO_COPPER,
+    SPREAD_RULE,
 )
 from pinlib.engines.pushline.sections import line_model, stretches_of
 from pinlib.engines.pushline.sichecks import _si_checks
@@ -595,6 +596,8 @@ def _add_figures(a: LineAnalysis, res: LineResult) -> None:
         res.notes.append(("distributed" if used else "lumped") + f" model: {LUMPED_RULE}")
         if any(c.driver.pin.drive == "open-drain" for c in a.cases.values()):
             res.notes.append(f"open-drain rise: {PULLUP_RISE_RULE}")
+        if a.net is not None and _spread(a):
+            res.notes.append(f"pins at several points of the route: {SPREAD_RULE}")
     res.figure("delay_to_edge_ratio", a.ratio, "")
 
 
@@ -614,6 +617,16 @@ def _idle_pin_notes(a: LineAnalysis, res: LineResult) -> None:
                          f"at any pin) at {pin} while {driver} drives: its part states no "
                          f"abs_max for that pin, so no check covers {'them' if many else 'it'}"
                          f"{rest}")
+
+
+def _spread(a: LineAnalysis) -> bool:
+    """Whether a push-pull driver of the routed line ``a`` loads pins at more than one
+    point of its route (:func:`pinlib.engines.pushline.routes.pins_spread`)."""
+    from pinlib.engines.pushline.routes import pins_spread
+
+    return any(c.driver.pin.drive != "open-drain"
+               and pins_spread(a.net, c.load_refs, a.line.extra_capacitance)
+               for c in a.cases.values())
 
 
 def _route_net(route, stretches, anchor: str | None = None):

@@ -157,6 +157,17 @@ def node_caps(net: RouteNet, pins: dict, extra_c: float) -> list[float]:
     return caps
 
 
+def pins_spread(net: RouteNet, refs: Sequence[str], extra_c: float) -> bool:
+    """Whether the pins ``refs`` (and the extra capacitance, at the far node) sit at more
+    than one point of the route: their capacitance is then spread along it, and the
+    lumping of a push-pull line is held to
+    :data:`~pinlib.engines.pushline.rules.SPREAD_INDUCTANCE_LIMIT`. [1]"""
+    points = {net.node(r) for r in refs}
+    if extra_c > 0:
+        points.add(net.far)
+    return len(points) > 1
+
+
 class PointWaves:
     """One edge at every node of a route, each :class:`EdgeWave` made when first asked
     for (a line of many devices asks for few of them).

@@ -35,6 +35,21 @@ PULLUP_RISE_RULE = (
     "inductance rings between the pins' capacitances at about sqrt(L/C)/R of the swing "
     "(derived from an LC tank excited by the pull-up's step, checked against ngspice)")
 
+#: A push-pull line whose pins sit at more than one point of its route is lumped only
+#: when ``L / (R^2 C)`` is at most this, R the driver's source resistance: the same
+#: limit for the same reason as the open-drain rise above.  The series RLC behind
+#: LUMPED_INDUCTANCE_LIMIT holds the line's capacitance at its far end with the pins;
+#: with pins along a route the inductance between their capacitances rings, damped only
+#: by the driver.  Against ngspice (tests/test_route_spice.py, weak 500 and 600 Ω
+#: drivers, 1 pF/cm and 60 ps/cm, two or three inputs on stubs or a daisy chain) the
+#: lumped edge erred 4.45 % at L/(R^2 C) = 7.9e-3 and 1.31 % at 5e-3; a random sweep of
+#: 200-800 Ω drivers erred up to 6 % (0.94 % at 1.5e-3), and within 0.6 % with one input.
+SPREAD_INDUCTANCE_LIMIT = PULLUP_RISE_INDUCTANCE_LIMIT
+SPREAD_RULE = (
+    "one lumped capacitance only when L / (R^2 C) <= 1e-4, R the source resistance: "
+    "the line's inductance rings between the pins' capacitances at about sqrt(L/C)/R "
+    "of the swing (derived from an LC tank between the pins, checked against ngspice)")
+
 #: The 10-90 % edge at the far end must stay under this fraction of the clock period.
 EDGE_FRACTION = 0.10
 EDGE_RULE = ("10-90 % edge within 10 % of the clock period (rule of thumb, common "
