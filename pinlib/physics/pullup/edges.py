@@ -3,6 +3,8 @@ frequency they allow, and the bus capacitance from a measured rise."""
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from pinlib.core import messages as M
@@ -99,6 +101,8 @@ def rise_time_with_leakage(rp, cb, vdd, leakage, lo=0.3, hi=0.7):
     leakage = _non_negative(leakage, "leakage", "[A]")
     v_end = vdd - leakage * rp
     a, b = v_end - lo * vdd, v_end - hi * vdd
+    if b.ndim == 0:  # one line (every call of the engine's note): the same in floats
+        return float(rp * cb) * math.log(float(a / b)) if b > 0 else math.inf
     with np.errstate(divide="ignore", invalid="ignore"):
         t = np.where(b > 0, rp * cb * np.log(np.where(b > 0, a / b, 1.0)), np.inf)
     return _out(t)
