@@ -35,9 +35,9 @@ How a line is built
   (:data:`LUMPED_RULE`): a driver much stronger than the line impedance rings even on
   a short trace, and there the chain is solved too.  An open-drain rise, a step
   through the pull-up into capacitances spread along the net, is held to a stricter
-  limit (:data:`PULLUP_RISE_RULE`): the inductance between them rings; so is a
-  push-pull line whose pins sit at more than one point of its route
-  (:data:`SPREAD_RULE`).
+  limit (:data:`PULLUP_RISE_RULE`): the inductance between them rings; so is every
+  other edge (a push-pull driver's, an open-drain sink's fall) of a line whose pins
+  sit at more than one point of its route (:data:`SPREAD_RULE`).
 * **Driver model.**  :func:`pinlib.physics.driver.driver_from_pin`: a ramp behind
   ``r_out`` for each edge.  An open-drain GPIO driver sinks through ``v_ol / i_ol``
   against the pull-ups on the net, and the line rises through them.

@@ -358,8 +358,9 @@ def edge_plan(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver,
               r_pullup: float | None = None, v_pullup: float | None = None,
               spread: bool = False) -> EdgePlan:
     """The edges :func:`drive_case` solves for these inputs (same arguments); ``spread``:
-    a push-pull driver's loads sit at more than one point of a route
-    (:func:`~pinlib.engines.pushline.routes.pins_spread`), which holds its lumping to
+    the driver's loads sit at more than one point of a route
+    (:func:`~pinlib.engines.pushline.routes.pins_spread`), which holds the lumping of
+    its edges (a push-pull driver's, an open-drain sink's fall) to
     :data:`~pinlib.engines.pushline.rules.SPREAD_INDUCTANCE_LIMIT`."""
     c_far = sum(p.c_in for p in loads) + extra_c
     if driver.pin.drive == "open-drain":
@@ -379,7 +380,7 @@ def edge_plan(stretches: Sequence[Stretch], driver: Endpoint, model: drv.Driver,
         # line the rise read up to 10 % faster than ngspice, lumped about 2 % slower)
         rise_dist = rs <= 0 and needs_distributed(stretches, rp, c_all, False,
                                                   PULLUP_RISE_INDUCTANCE_LIMIT)
-        distributed = needs_distributed(stretches, r_th, c_all, long)
+        distributed = needs_distributed(stretches, r_th, c_all, long, _limit(spread))
         own = driver.c_in if (rise_dist or distributed) and driver.c_in > 0 else 0.0
         return EdgePlan((rp, 0.0, c_far if rise_dist and own else c_all, v_lo, v_hi),
                         (r_th, model.t_ramp_fall, c_far if distributed and own else c_all,
@@ -404,7 +405,8 @@ def _open_drain_levels(driver: Endpoint, loads: Sequence[Endpoint], model: drv.D
 
 
 def _limit(spread: bool) -> float:
-    """The largest ``L / (R^2 C)`` a push-pull line is lumped at: the pins' capacitance
+    """The largest ``L / (R^2 C)`` an edge driven through a source resistance (a
+    push-pull driver's, an open-drain sink's fall) is lumped at: the pins' capacitance
     spread along a route rings through the line's inductance between them."""
     return SPREAD_INDUCTANCE_LIMIT if spread else LUMPED_INDUCTANCE_LIMIT
 

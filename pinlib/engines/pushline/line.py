@@ -620,12 +620,11 @@ def _idle_pin_notes(a: LineAnalysis, res: LineResult) -> None:
 
 
 def _spread(a: LineAnalysis) -> bool:
-    """Whether a push-pull driver of the routed line ``a`` loads pins at more than one
-    point of its route (:func:`pinlib.engines.pushline.routes.pins_spread`)."""
+    """Whether a driver of the routed line ``a`` loads pins at more than one point of
+    its route (:func:`pinlib.engines.pushline.routes.pins_spread`)."""
     from pinlib.engines.pushline.routes import pins_spread
 
-    return any(c.driver.pin.drive != "open-drain"
-               and pins_spread(a.net, c.load_refs, a.line.extra_capacitance)
+    return any(pins_spread(a.net, c.load_refs, a.line.extra_capacitance)
                for c in a.cases.values())
 
 

@@ -160,7 +160,7 @@ def node_caps(net: RouteNet, pins: dict, extra_c: float) -> list[float]:
 def pins_spread(net: RouteNet, refs: Sequence[str], extra_c: float) -> bool:
     """Whether the pins ``refs`` (and the extra capacitance, at the far node) sit at more
     than one point of the route: their capacitance is then spread along it, and the
-    lumping of a push-pull line is held to
+    lumping of a push-pull driver's edges and of an open-drain sink's fall is held to
     :data:`~pinlib.engines.pushline.rules.SPREAD_INDUCTANCE_LIMIT`. [1]"""
     points = {net.node(r) for r in refs}
     if extra_c > 0:
