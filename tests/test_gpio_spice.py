@@ -245,7 +245,8 @@ route = [
         sink="pp-weak-sink", library=(tmp_path,))
     case = a.cases["U2"]
     assert case.distributed
-    assert f"pins at several points of the route: {SPREAD_RULE}" in a.result.notes
+    assert ("open-drain fall (the sink's pin at its point, the inputs along the line): "
+            f"{SPREAD_RULE}") in a.result.notes
     net = case.net
     assert net.node("U2") == 0  # the sink at n0, where the deck puts it
     n = {r: f"n{net.node(r)}" for r in ("U1", "U3", "U4")}
@@ -265,3 +266,21 @@ route = [
             got = run_deck(deck, ["ta", "tb"])
             wave = case.wave_at(far, edge)
             assert wave.t_edge == pytest.approx(got["tb"] - got["ta"], rel=EDGE_REL), (far, edge)
+
+
+def test_weak_sink_on_a_plain_trace_matches_ngspice(tmp_path):
+    # found by a sweep of weak sinks with one input (invented case): a 400 Ω sink against
+    # 2 kΩ, its input 6 cm away on a plain trace. L/(R^2 C) of the fall is 9.4e-3 and the
+    # fall was lumped by the 0.01 of a series RLC: 2.56 % slower than ngspice. Its
+    # capacitance is spread as on a route: the sink's own pin at its end, the input at
+    # the other. Solved as a line, both edges within the 1 %
+    (tmp_path / "pp-weak-sink.toml").write_text(_WEAK_SINK, encoding="utf-8")
+    trace = 'length = "6 cm"\ncapacitance = "1.2 pF/cm"\ndelay = "60 ps/cm"\n'  # invented
+    a = _analysis(tmp_path, trace + 'pullup = "2 kΩ"', sink="pp-weak-sink",
+                  library=(tmp_path,))
+    assert a.cases["U2"].distributed
+    assert any(n.startswith("open-drain fall (the sink's pin at its point") for n in
+               a.result.notes)
+    td = 60e-12 * 6  # derived: 60 ps/cm over 6 cm
+    z0 = 60e-12 / 1.2e-12  # derived: Z0 = delay / capacitance, 50 Ω
+    _matches(a, 2e3, [f"T1 n0 0 far 0 Z0={z0:.9g} TD={td:.9g}"], "far", td)

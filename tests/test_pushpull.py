@@ -603,7 +603,7 @@ devices = [
 lines.irq = { length = "6 cm", capacitance = "1 pF/cm", delay = "50 ps/cm" }
 """)
     (ln,) = evaluate_bus(d.bus("irq"), d).lines
-    (note,) = [n for n in ln.notes if "open-drain sink" in n]
+    (note,) = [n for n in ln.notes if n.startswith("U2.irq:") and "open-drain sink" in n]
     assert note.startswith("U2.irq: fall:") and "1 ns" in note and "no source" in note
 
 

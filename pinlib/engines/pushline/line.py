@@ -596,6 +596,8 @@ def _add_figures(a: LineAnalysis, res: LineResult) -> None:
         res.notes.append(("distributed" if used else "lumped") + f" model: {LUMPED_RULE}")
         if any(c.driver.pin.drive == "open-drain" for c in a.cases.values()):
             res.notes.append(f"open-drain rise: {PULLUP_RISE_RULE}")
+            res.notes.append(f"open-drain fall (the sink's pin at its point, the inputs "
+                             f"along the line): {SPREAD_RULE}")
         if a.net is not None and _spread(a):
             res.notes.append(f"pins at several points of the route: {SPREAD_RULE}")
     res.figure("delay_to_edge_ratio", a.ratio, "")
@@ -620,11 +622,13 @@ def _idle_pin_notes(a: LineAnalysis, res: LineResult) -> None:
 
 
 def _spread(a: LineAnalysis) -> bool:
-    """Whether a driver of the routed line ``a`` loads pins at more than one point of
-    its route (:func:`pinlib.engines.pushline.routes.pins_spread`)."""
+    """Whether a push-pull driver of the routed line ``a`` loads pins at more than one
+    point of its route (:func:`pinlib.engines.pushline.routes.pins_spread`); an
+    open-drain line's note says its fall's rule on every line form."""
     from pinlib.engines.pushline.routes import pins_spread
 
-    return any(pins_spread(a.net, c.load_refs, a.line.extra_capacitance)
+    return any(c.driver.pin.drive != "open-drain"
+               and pins_spread(a.net, c.load_refs, a.line.extra_capacitance)
                for c in a.cases.values())
 
 
