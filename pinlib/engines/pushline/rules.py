@@ -44,10 +44,12 @@ PULLUP_RISE_RULE = (
 #: drivers, 1 pF/cm and 60 ps/cm, two or three inputs on stubs or a daisy chain) the
 #: lumped edge erred 4.45 % at L/(R^2 C) = 7.9e-3 and 1.31 % at 5e-3; a random sweep of
 #: 200-800 Ω drivers erred up to 6 % (0.94 % at 1.5e-3), and within 0.6 % with one input.
-#: An open-drain sink's fall on such a route is held to it too, R the sink against the
-#: pull-ups in parallel: against ngspice, weak sinks (100-400 Ω) on stubs or a daisy
-#: chain lumped at 0.01 erred over 1 % at an input in 10 of 15 random routes, up to
-#: 3.9 % (L/(R^2 C) = 9.9e-3), and within 0.1 % solved as a line (tests/test_gpio_spice.py).
+#: An open-drain sink's fall is held to it on every line form (its own pin at its
+#: point, the inputs elsewhere: one input 6 cm away, lumped, was 2.56 % slow), R the
+#: sink against the pull-ups in parallel: against ngspice, weak sinks (100-400 Ω) on
+#: stubs or a daisy chain lumped at 0.01 erred over 1 % at an input in 10 of 15 random
+#: routes, up to 3.9 % (L/(R^2 C) = 9.9e-3), and within 0.1 % solved as a line
+#: (tests/test_gpio_spice.py).
 SPREAD_INDUCTANCE_LIMIT = PULLUP_RISE_INDUCTANCE_LIMIT
 SPREAD_RULE = (
     "one lumped capacitance only when L / (R^2 C) <= 1e-4, R the source resistance "
