@@ -720,6 +720,10 @@ def test_a_row_without_sensitivities_says_why(capsys, monkeypatch):
                                         "the fit's noise (R² 0.01)")
     assert unfitted.sensitivity_text() == "too few boards to fit"
     assert named.sensitivity_text() == "rail 3.3 V -0.90"
+    # a check absent from some boards: its margin is the same where it is
+    part = McCheck("b x", "b", "b", None, "x", "", "", "pass", 0.1, Yield(4, 4, (0.5, 1.0)),
+                   margins=np.array([0.1, np.nan, 0.1, np.nan]), sampled=4, absent=2)
+    assert part.sensitivity_text() == "the same margin on every board that has it"
     # the report's table says the same in its column
     rows = _mc_rows([steady, named])
     assert [_mc_cells(r)[4] for r in rows] == ["the same margin on every board",
@@ -984,7 +988,7 @@ def test_monte_carlo_counts_the_boards_a_check_is_absent_from(monkeypatch):
     assert row.absent == 40 and row.fails == 0
     assert row.to_json()["absent"] == 40
     text = " ".join(mc.format_text(limit=None).split())
-    assert "absent from 40 boards" in text
+    assert "absent from 40 boards; no margin to follow" in text
     # and the report's Monte Carlo table, whose pass fraction would read 100 % alone
     (cells,) = [_mc_cells(r) for r in _mc_rows(mc) if "Sink current" in r["where"]]
     assert cells[1] == "100.00% (absent from 40 boards)"

@@ -130,8 +130,10 @@ class McCheck:
             return ", ".join(f"{n} {s:+.2f}" for n, s in self.sensitivity[:most])
         if self.margins is None:
             return "a yes/no check: no margin to follow"
+        if self.absent and self.absent >= self.passes.n:
+            return "no margin to follow"
         if not self.varies:
-            return "the same margin on every board"
+            return "the same margin on every board" + (" that has it" if self.absent else "")
         if self.r2 is None:
             return "too few boards to fit"
         return (f"no parameter's coefficient reaches {SENSITIVITY_FLOOR:g} clear of the "
