@@ -22,6 +22,7 @@ from __future__ import annotations
 import numpy as np
 
 from pinlib.core import messages as M
+from pinlib.core.labels import plural_s
 from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
 from pinlib.library.ibis import IbisFile, Model, Pin
@@ -150,7 +151,7 @@ def fit_edges(ibis: IbisFile, model: Model, corner: str, c_package: float = 0.0
         keyword = "[Rising Waveform]" if edge == "rise" else "[Falling Waveform]"
         if got is not None:
             fit, n = got
-            what = f"{n} {keyword} table{'s' if n > 1 else ''}"
+            what = f"{n} {keyword} table{plural_s(n)}"
             out[edge] = EdgeFit(edge, corner, fit.r_out, fit.t_ramp, what, fit.rms,
                                 fit.swing, c_comp + c_package)
             continue

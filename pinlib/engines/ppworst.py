@@ -30,6 +30,7 @@ from typing import NamedTuple
 
 import numpy as np
 
+from pinlib.core.labels import plural_s
 from pinlib.engines.memo import run_scope
 from pinlib.engines.ppvariant import (
     check_names,
@@ -113,7 +114,7 @@ def method_text(k: int, limit: int = EXHAUSTIVE_LIMIT) -> str:
     if k == 0:
         return "no toleranced parameter"
     if k <= limit:
-        return f"all {2 ** k} corners of {k} parameter{'s' if k > 1 else ''}"
+        return f"all {2 ** k} corners of {k} parameter{plural_s(k)}"
     return (f"{k} parameters: each alone at both ends, then for each check every parameter "
             "at the end that lowered its margin")
 

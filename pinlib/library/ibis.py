@@ -34,6 +34,7 @@ from pathlib import Path
 
 from pinlib.core import messages as M
 from pinlib.core.errors import LibraryError
+from pinlib.core.labels import plural_s
 from pinlib.core.tomlfile import read_regular
 from pinlib.core.valueclass import value_class
 
@@ -211,7 +212,7 @@ class _Where:
 
     def columns(self, cols: list[str], want: int, line: int, keyword: str, what: str):
         if len(cols) != want:
-            found = f"{len(cols)} column" + ("" if len(cols) == 1 else "s")
+            found = f"{len(cols)} column{plural_s(len(cols))}"
             raise self.error(M.IBIS_WRONG_COLUMNS.format(found=found, expected=want),
                              line, keyword, " ".join(cols), what)
 

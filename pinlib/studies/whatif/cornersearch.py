@@ -10,7 +10,7 @@ from dataclasses import field
 
 import numpy as np
 
-from pinlib.core.labels import sampled_check_label
+from pinlib.core.labels import plural_s, sampled_check_label
 from pinlib.core.progress import progress_bar
 from pinlib.core.protocols import PUSH_PULL_PROTOCOLS
 from pinlib.core.valueclass import value_class
@@ -225,7 +225,7 @@ def _worst(bus, run, k: int, exhaustive_limit: int) -> tuple[np.ndarray, str]:
                  else np.zeros((1, 0)))
         mg = _key(_margins(run(verts)))
         return verts[np.argmin(mg, axis=0)], (f"all {len(verts)} corners of {k} parameter"
-                                              f"{'s' if k > 1 else ''}"
+                                              f"{plural_s(k)}"
                                               if k else "no toleranced parameter")
     return _screen(run, k), (f"{k} parameters: each screened alone at both ends, then the "
                              "combined corner improved one flip at a time")
