@@ -148,7 +148,9 @@ def needs_distributed(stretches: Sequence[Stretch], r_source: float, c_load: flo
         Electrically long by :data:`LONG_LINE_RULE`. [1]
     limit : float, optional
         The largest ``L / (R^2 C)`` taken lumped: :data:`LUMPED_INDUCTANCE_LIMIT`, or
-        :data:`PULLUP_RISE_INDUCTANCE_LIMIT` for an open-drain rise. [1]
+        :data:`PULLUP_RISE_INDUCTANCE_LIMIT` for an open-drain rise and
+        :data:`SPREAD_INDUCTANCE_LIMIT` for an edge whose pins' capacitance is spread
+        along the line (an open-drain fall, a push-pull route of several points). [1]
 
     Returns
     -------

@@ -4,10 +4,11 @@ run's summary sentences and the histograms of the checks with the lowest pass fr
 
 from __future__ import annotations
 
-from pinlib.core.labels import check_label, counted, sampled_check_label
+from pinlib.core.labels import check_label, sampled_check_label
 from pinlib.core.quantity import format_si
 from pinlib.model.result import margin_order, signed_margin_text
 from pinlib.present.review.draw import _draw
+from pinlib.studies.whatif.mcresult import absent_words
 from pinlib.studies.whatif.sensitivity import beyond_rounding
 from pinlib.studies.whatif.yields import percent_text
 
@@ -170,7 +171,7 @@ def _yield(y) -> str:
 def _mc_cells(row: dict) -> list[str]:
     frac = "" if row["fraction"] is None else percent_text(row["fraction"])
     if row.get("absent"):  # counted as passing there: the board has no such check
-        frac += counted(" (absent from {n} board{s})", row["absent"])
+        frac += f" ({absent_words(row['absent'])})"
     ci = "" if row["ci"] is None else f"{percent_text(row['ci'][0])} to " \
                                       f"{percent_text(row['ci'][1])}"
     low = "" if row["lowest"] is None else signed_margin_text(row["lowest"],

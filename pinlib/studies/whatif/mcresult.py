@@ -28,6 +28,12 @@ def find_check(checks, bus: str, check_id: str, signal: str | None = None,
     raise KeyError((bus, check_id, signal, segment))
 
 
+def absent_words(n: int) -> str:
+    """How many boards a check is absent from, as the text and the report say it:
+    ``"absent from 3 boards"``."""
+    return counted("absent from {n} board{s}", n)
+
+
 @value_class
 class McCheck:
     """One check over the drawn boards.
@@ -232,7 +238,7 @@ class McResult:
                 # margin of -89 % says so, or it reads as a contradiction
                 warned = f"warns on {c.warns}; " if c.warns else ""
                 if c.absent:  # counted as passing: the text says the check is not there
-                    warned += counted("absent from {n} board{s}; ", c.absent)
+                    warned += absent_words(c.absent) + "; "
                 # "min" beside its margin (one space: a wrapped row keeps them together),
                 # the pair right-aligned so the margins line up
                 low = "min " + _fmt_margin(_low(c), c.margin_unit)
