@@ -27,7 +27,7 @@ from pinlib.physics.driver import (
 needs_ngspice = pytest.mark.skipif(not have_ngspice(), reason="ngspice not on PATH")
 
 PUBLIC_FUNCTIONS = [driver.level_fractions, edge_time, r_out_from_levels, fit_driver,
-                    driver_from_pin, edge_vs_load]
+                    driver.fit_drivers, driver.fit_requests, driver_from_pin, edge_vs_load]
 
 
 # --------------------------------------------------------------------------- model limits

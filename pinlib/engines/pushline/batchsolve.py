@@ -24,6 +24,10 @@ lumped edge, a record not yet at rest, a solve that warned, a series resistor
 prefetch.  So every figure is the engine's, from the same grid and solver; only rounding
 inside a batched solve can differ (a few units in the last place).
 
+Before the edges, the drivers' models are fitted together
+(:func:`~pinlib.engines.pushline.drive.prefit`): a candidate's output pin brings its own
+datasheet edges, and one fit at a time took most of a driving position's ranking.
+
 It needs an active :func:`pinlib.engines.memo.run_scope` (without one it does nothing),
 and the scope holds every edge solved until it ends: callers prefetch a bounded number
 of variants per scope.
@@ -40,7 +44,7 @@ from pinlib.core.errors import PinlibError
 from pinlib.engines import memo
 from pinlib.engines.pushline.analysis import LineAnalysis, _others
 from pinlib.engines.pushline.batchfigures import EdgeUse, store_figures
-from pinlib.engines.pushline.drive import _thresholds, edge_plan, ref_times
+from pinlib.engines.pushline.drive import _thresholds, edge_plan, prefit, ref_times
 from pinlib.engines.pushline.line import (
     LineInputs,
     _driver_models,
@@ -84,6 +88,8 @@ def prefetch(inputs: Iterable[LineInputs]) -> int:
     """
     if not memo.active():
         return 0
+    inputs = list(inputs)
+    prefit(ep for li in inputs for ep in li.drivers)
     requests, uses = {}, {}
     made = [(li, a) for li in inputs if (a := _analysis(li)) is not None]
     _edges_alone([a for _, (a, _) in made])

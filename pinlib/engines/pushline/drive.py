@@ -4,7 +4,7 @@
 from __future__ import annotations
 
 import warnings
-from collections.abc import Sequence
+from collections.abc import Iterable, Sequence
 from typing import TYPE_CHECKING
 
 from pinlib.core.errors import PinlibError
@@ -227,6 +227,19 @@ def _driver_model(ep: Endpoint, notes: list) -> drv.Driver:
                      "undershoot and ringing; slow corner (r_out, edges) for edge time and "
                      "timing")
     return model
+
+
+def prefit(endpoints: Iterable[Endpoint]) -> None:
+    """Fit the driver models of these pins together (:func:`~pinlib.physics.driver.
+    fit_drivers`), so that :func:`_driver_model`, one pin at a time, finds each fit made
+    (the same numbers and warnings as its own would be).  A pin whose values a fit would
+    refuse is left to it, to say so where it is read."""
+    pins = {(id(ep.pin), float(ep.vdd)): ep for ep in endpoints}  # a pin at a supply once
+    requests = [req for ep in pins.values() for req in drv.fit_requests(ep.pin, ep.vdd)]
+    if requests:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")  # each model issues its fit's warnings again
+            drv.fit_drivers(requests)
 
 
 def _fit_pin(pin: Pin, vdd: float) -> tuple[drv.Driver, tuple]:

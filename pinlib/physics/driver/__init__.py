@@ -9,7 +9,8 @@ their own ``r_out`` and ``t_ramp``.
 
 Datasheets give edge times at one or a few loads (``edges`` in a part class).  From
 them :func:`fit_driver` finds ``r_out`` and ``t_ramp`` by least squares, or ``t_ramp``
-alone when ``r_out`` is known; :func:`driver_from_pin` builds a :class:`Driver` from a
+alone when ``r_out`` is known, and :func:`fit_drivers` many sets of points together
+(:func:`fit_requests` lists a pin's); :func:`driver_from_pin` builds a :class:`Driver` from a
 part-class pin, marking every value it had to derive; :func:`edge_time` and
 :func:`edge_vs_load` give the edge time against load for charts.
 
@@ -40,6 +41,7 @@ from pinlib.physics.driver.fitting import (  # noqa: F401
     _spread_text,
     _to_record,
     fit_driver,
+    fit_drivers,
     fit_key,
 )
 from pinlib.physics.driver.model import (  # noqa: F401
@@ -63,6 +65,7 @@ from pinlib.physics.driver.model import (  # noqa: F401
 from pinlib.physics.driver.pin import (  # noqa: F401
     _points,
     driver_from_pin,
+    fit_requests,
 )
 from pinlib.physics.driver.solver import (  # noqa: F401
     _BOX_FACTOR,
@@ -84,6 +87,7 @@ from pinlib.physics.driver.solver import (  # noqa: F401
     _median,
     _Problem,
     _solve,
+    _solve_many,
 )
 
 __all__ = [
@@ -97,15 +101,20 @@ __all__ = [
     "edge_time",
     "r_out_from_levels",
     "fit_driver",
+    "fit_drivers",
+    "fit_requests",
     "driver_from_pin",
     "edge_vs_load",
 ]
 
 # Fits already made in this process, by their inputs.  The SPI engine fits the same
 # datasheet points once per routed line and edge; the fit is deterministic, so a repeat
-# returns the stored fit (and issues its warnings again).  Bounded, oldest dropped first.
+# returns the stored fit (and issues its warnings again).  Bounded, oldest dropped first:
+# large enough for the fits of a chunk of candidates made together before their
+# evaluations ask for them (512 candidates of two or four each; about 1 kB a fit), which
+# a bound of 256 dropped before use, so each was made again at each corner's supply.
 _FIT_CACHE: OrderedDict = OrderedDict()
-_FIT_CACHE_SIZE = 256
+_FIT_CACHE_SIZE = 4096
 #: A second store of fits, by :func:`fit_key`, that outlives the process (the command
 #: line installs one: :mod:`pinlib.engines.fitstore`); None: fits live in this process only.
 FIT_STORE = None

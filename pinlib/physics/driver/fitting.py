@@ -20,9 +20,15 @@ from pinlib.core import messages as M
 from pinlib.core.errors import FitWarning, InputError
 from pinlib.physics import rc
 from pinlib.physics.driver.model import DEFAULT_R_OUT, DriverFit, _positive, level_fractions
-from pinlib.physics.driver.solver import _flat_ramp_limit, _jacobian, _Problem, _solve
+from pinlib.physics.driver.solver import (
+    _flat_ramp_limit,
+    _jacobian,
+    _Problem,
+    _solve,
+    _solve_many,
+)
 
-__all__ = ["fit_driver", "fit_key"]
+__all__ = ["fit_driver", "fit_drivers", "fit_key"]
 
 # A point whose model edge differs from the datasheet by more than this fraction makes
 # the fit warn.  common practice, no source: datasheets print edge times to two or three
@@ -135,47 +141,122 @@ def fit_driver(loads, times, levels="10-90", *, r_out=None, r_out_dc=None):
     >>> round(fit.r_out, 1), fit.method
     (20.0, 'least-squares')
     """
-    loads_a, times_a, lo, hi, names = _checked_points(loads, times, levels)
-    r_fixed = None if r_out is None else float(_positive(r_out, "r_out", "[Ω]"))
-    r_dc = None if r_out_dc is None else float(_positive(r_out_dc, "r_out_dc", "[Ω]"))
+    job = _Job(loads, times, levels, r_out, r_out_dc)
+    if job.fit is not None:
+        return _replay(job.key, stacklevel=3)
+    return job.finish(_solve(job.problem, job.r_fixed), stacklevel=3)
 
-    conditions = {(float(c), n) for c, n in zip(loads_a, names, strict=True)}
-    # r_out_dc enters only a fit that cannot separate r_out from t_ramp by itself, so it
-    # is part of the key only then (the SPI engine fits the same points with and without).
-    uses_dc = r_out is None and len(conditions) < 2 and r_out_dc is not None
-    key = (loads_a.tobytes(), times_a.tobytes(), tuple(names), r_fixed,
-           r_dc if uses_dc else None)
-    if key in _memory()._FIT_CACHE:
-        return _replay(key)
 
-    messages = _decreasing_points(loads_a, times_a, names)
-    method, r_fixed, notes = _r_out_method(r_fixed, r_dc, len(conditions))
-    problem = _Problem(loads_a, times_a, lo, hi)
-    store = _memory().FIT_STORE
-    if store is not None:
-        stored = _stored_fit(store.get(fit_key(key)), problem, method, r_fixed)
-        if stored is not None:
-            _memory()._FIT_CACHE[key] = stored
-            return _replay(key)
-    found, x, r_fit, t_fit, box = _best_solution(problem, r_fixed, notes)
-    model = problem.model(r_fit, t_fit)
-    residuals = model - times_a
-    messages += _misfit_messages(problem, method, found, x, r_fit, t_fit, model, residuals,
-                                 names, box)
+def fit_drivers(requests) -> list:
+    """:func:`fit_driver` of many sets of points, their least-squares solves made together.
 
-    for msg in messages:
-        warnings.warn(msg, FitWarning, stacklevel=2)
-    fit = DriverFit(
-        r_out=r_fit,
-        t_ramp=t_fit,
-        residuals=residuals,
-        rms_residual=float(np.sqrt(np.mean(residuals * residuals))),
-        method=method,
-        warnings=tuple(messages),
-        notes=tuple(notes),
-    )
-    _remember(key, fit)
-    return fit
+    Parameters
+    ----------
+    requests : iterable of tuple
+        Each ``(loads, times, levels, r_out, r_out_dc)``, the arguments of one
+        :func:`fit_driver` call. [1]
+
+    Returns
+    -------
+    list
+        In the order of ``requests``: the :class:`DriverFit` that :func:`fit_driver`
+        gives for those points (the same numbers to the last bit; it is kept in this
+        process and the store as that call keeps it, so a later call is served from
+        there), or the :class:`~pinlib.core.errors.InputError` it would raise.
+
+    Warns
+    -----
+    FitWarning
+        As :func:`fit_driver`, each fit's warnings once per request.
+
+    Notes
+    -----
+    Fits with as many points and the same free parameters share one Levenberg-Marquardt
+    iteration over all their starts (:func:`pinlib.physics.driver.solver._solve_many`):
+    ranking a thousand candidates that each bring an output pin costs a few iterations'
+    numpy calls instead of a few thousand.
+    """
+    jobs: list = []
+    for req in requests:
+        try:
+            jobs.append(_Job(*req))
+        except InputError as err:
+            jobs.append(err)
+    todo: dict = {}  # one solve per distinct key
+    for job in jobs:
+        if isinstance(job, _Job) and job.fit is None and job.key not in todo:
+            todo[job.key] = job
+    solved = _solve_many([j.problem for j in todo.values()],
+                         [j.r_fixed for j in todo.values()])
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # each request's warnings are issued below
+        for job, got in zip(todo.values(), solved, strict=True):
+            job.finish(got)
+    out = []
+    for job in jobs:
+        if isinstance(job, InputError):
+            out.append(job)
+            continue
+        fit = job.fit if job.fit is not None else todo[job.key].fit
+        for msg in fit.warnings:
+            warnings.warn(msg, FitWarning, stacklevel=2)
+        out.append(replace(fit, residuals=fit.residuals.copy()))
+    return out
+
+
+class _Job:
+    """One fit's inputs checked, its key, and the fit already made for it (in this
+    process or the store) or what solving it needs."""
+
+    def __init__(self, loads, times, levels, r_out, r_out_dc):
+        loads_a, times_a, lo, hi, names = _checked_points(loads, times, levels)
+        r_fixed = None if r_out is None else float(_positive(r_out, "r_out", "[Ω]"))
+        r_dc = None if r_out_dc is None else float(_positive(r_out_dc, "r_out_dc", "[Ω]"))
+        conditions = {(float(c), n) for c, n in zip(loads_a, names, strict=True)}
+        # r_out_dc enters only a fit that cannot separate r_out from t_ramp by itself, so
+        # it is part of the key only then (the SPI engine fits the same points with and
+        # without).
+        uses_dc = r_out is None and len(conditions) < 2 and r_out_dc is not None
+        self.key = (loads_a.tobytes(), times_a.tobytes(), tuple(names), r_fixed,
+                    r_dc if uses_dc else None)
+        self.fit = None
+        if self.key in _memory()._FIT_CACHE:
+            self.fit = _memory()._FIT_CACHE[self.key]
+            return
+        self.loads, self.times, self.names = loads_a, times_a, names
+        self.messages = _decreasing_points(loads_a, times_a, names)
+        self.method, self.r_fixed, self.notes = _r_out_method(r_fixed, r_dc, len(conditions))
+        self.problem = _Problem(loads_a, times_a, lo, hi)
+        store = _memory().FIT_STORE
+        if store is not None:
+            stored = _stored_fit(store.get(fit_key(self.key)), self.problem, self.method,
+                                 self.r_fixed)
+            if stored is not None:
+                _memory()._FIT_CACHE[self.key] = self.fit = stored
+
+    def finish(self, solved, stacklevel: int = 2) -> DriverFit:
+        """The fit from the solver's solutions (``solved``, :func:`_solve`'s), its
+        warnings issued and the fit kept."""
+        problem, notes = self.problem, list(self.notes)
+        found, x, r_fit, t_fit, box = _best_solution(problem, self.r_fixed, notes, solved)
+        model = problem.model(r_fit, t_fit)
+        residuals = model - self.times
+        messages = self.messages + _misfit_messages(problem, self.method, found, x, r_fit,
+                                                    t_fit, model, residuals, self.names, box)
+        for msg in messages:
+            warnings.warn(msg, FitWarning, stacklevel=stacklevel)
+        fit = DriverFit(
+            r_out=r_fit,
+            t_ramp=t_fit,
+            residuals=residuals,
+            rms_residual=float(np.sqrt(np.mean(residuals * residuals))),
+            method=self.method,
+            warnings=tuple(messages),
+            notes=tuple(notes),
+        )
+        _remember(self.key, fit)
+        self.fit = fit
+        return fit
 
 
 def _checked_points(loads, times, levels):
@@ -212,7 +293,7 @@ def _memory():
     return sys.modules[__package__]
 
 
-def _replay(key) -> DriverFit:
+def _replay(key, stacklevel: int = 3) -> DriverFit:
     """The fit made earlier for ``key``, its warnings issued again."""
     memory = _memory()
     memory._FIT_CACHE.move_to_end(key)
@@ -220,7 +301,7 @@ def _replay(key) -> DriverFit:
         memory._FIT_CACHE.popitem(last=False)
     cached = memory._FIT_CACHE[key]
     for msg in cached.warnings:
-        warnings.warn(msg, FitWarning, stacklevel=3)
+        warnings.warn(msg, FitWarning, stacklevel=stacklevel)
     return replace(cached, residuals=cached.residuals.copy())
 
 
@@ -293,13 +374,15 @@ def _r_out_method(r_fixed, r_dc, n_conditions: int):
     return method, r_fixed, notes
 
 
-def _best_solution(problem: _Problem, r_fixed, notes: list[str]):
-    """Solve, and take the best solution: ``(found, x, r_out, t_ramp, box)``.
+def _best_solution(problem: _Problem, r_fixed, notes: list[str], solved):
+    """The best of the solutions (``solved``, :func:`_solve`'s): ``(found, x, r_out,
+    t_ramp, box)``.
 
     ``found`` lists the solutions, the one taken first; ``box`` is ``(lower, upper,
     free)``.  A ramp the points do not fix is set to 0, with a note.
     """
-    found, lower, upper, free = _solve(problem, r_fixed)
+    found, lower, upper, free = solved
+    found = list(found)
     # Among solutions that fit equally well (to rounding), take the shortest ramp.
     ties = [k for k, item in enumerate(found) if item[2] <= found[0][2] + 1e-18]
     first = min(ties, key=lambda k: found[k][0][1])

@@ -6,7 +6,7 @@ import warnings
 from dataclasses import replace
 
 from pinlib.core import messages as M
-from pinlib.core.errors import FitWarning, InputError
+from pinlib.core.errors import FitWarning, InputError, PinlibError
 from pinlib.core.valueclass import value_class
 from pinlib.physics.driver.fitting import _fmt, fit_driver
 from pinlib.physics.driver.model import (
@@ -20,7 +20,7 @@ from pinlib.physics.driver.model import (
     _r_low,
 )
 
-__all__ = ["driver_from_pin"]
+__all__ = ["driver_from_pin", "fit_requests"]
 
 
 def _points(edges, which: str):
@@ -132,11 +132,10 @@ def _fast_driver(pin, vdd_f: float, slow: Driver) -> Driver | None:
     ramp (a stronger output with the same ramp) and, without a corner ``r_out``, the slow
     corner's ``r_out`` too; a note says so.
     """
-    corner = getattr(pin, "fast", None)
-    if corner is None:
+    view = _fast_view(pin)
+    if view is None:
         return None
-    view = _CornerPin("push-pull", corner.r_out, tuple(corner.edges), pin.v_oh, pin.i_oh,
-                      pin.v_ol, pin.i_ol)
+    corner = pin.fast
     model = driver_from_pin(view, vdd_f)
     basis = dict(model.basis)
     ramps = {}
@@ -159,6 +158,52 @@ def _fast_driver(pin, vdd_f: float, slow: Driver) -> Driver | None:
     return replace(model, basis=basis, notes=notes, **ramps)
 
 
+def _fast_view(pin) -> _CornerPin | None:
+    """The pin's fast corner as a pin :func:`driver_from_pin` reads, or None."""
+    corner = getattr(pin, "fast", None)
+    if corner is None:
+        return None
+    return _CornerPin("push-pull", corner.r_out, tuple(corner.edges), pin.v_oh, pin.i_oh,
+                      pin.v_ol, pin.i_ol)
+
+
+def fit_requests(pin, vdd) -> list[tuple]:
+    """The fits :func:`driver_from_pin` makes of a push-pull pin at ``vdd``, its fast
+    corner's included, as :func:`~pinlib.physics.driver.fitting.fit_drivers` takes them.
+
+    Parameters
+    ----------
+    pin : pinlib.library.schema.Pin
+        A pin (any drive; only a push-pull pin's edges are fitted). [1]
+    vdd : float
+        Supply of the part. [V]
+
+    Returns
+    -------
+    list of tuple
+        ``(loads, times, levels, r_out, r_out_dc)`` of each edge direction with points;
+        empty where :func:`driver_from_pin` would refuse the pin's values (it says why
+        when called).
+    """
+    out: list[tuple] = []
+    if getattr(pin, "drive", None) != "push-pull":
+        return out
+    try:
+        vdd_f = float(_positive(vdd, "vdd", "[V]"))
+        for view in (pin, _fast_view(pin)):
+            if view is None:
+                continue
+            r_given = None if view.r_out is None else float(view.r_out.at(vdd_f))
+            r_dc = _r_out_dc(view, vdd_f)
+            for which in ("rise", "fall"):
+                rows = _points(view.edges, which)
+                if rows:
+                    out.append(_request(rows, r_given, r_dc[which]))
+    except PinlibError:
+        return []
+    return out
+
+
 def _r_out_dc(pin, vdd_f: float) -> dict:
     """r_out of each edge from the pin's output levels, or None where it has none."""
     return {
@@ -179,15 +224,20 @@ def _supply_notes(which: str, rows, vdd_f: float) -> list[str]:
     return []
 
 
+def _request(rows, r_given, r_dc) -> tuple:
+    """The arguments of the fit of one edge direction's points: ``(loads, times, levels,
+    r_out, r_out_dc)``."""
+    return ([c for c, *_ in rows], [t for _, t, *_ in rows], [lv for _, _, lv, _ in rows],
+            r_given, r_dc)
+
+
 def _fitted_edge(which: str, rows, r_given, r_dc):
     """The fit of one edge direction to its points: ``(fit, basis of r_out, notes)``."""
-    loads = [c for c, *_ in rows]
-    times = [t for _, t, *_ in rows]
-    levels = [lv for _, _, lv, _ in rows]
+    loads, times, levels, r_out, r_out_dc = _request(rows, r_given, r_dc)
     # rise and fall are fitted apart: each warning of the fit says whose it is
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
-        fit = fit_driver(loads, times, levels, r_out=r_given, r_out_dc=r_dc)
+        fit = fit_driver(loads, times, levels, r_out=r_out, r_out_dc=r_out_dc)
     for w in caught:
         if issubclass(w.category, FitWarning):
             warnings.warn(f"{which}: {w.message}", FitWarning, stacklevel=3)

@@ -39,7 +39,7 @@ _TRIAL_CHUNKS = ((0, 2), (2, _TRIALS))
 # --------------------------------------------------------------------------- solver
 
 
-def _lm(fun, x0, lower, upper, free):
+def _lm(fun, x0, lower, upper, free, *, by_row=False):
     """Bounded Levenberg-Marquardt on a small least-squares problem, from several starts.
 
     ``x0`` holds one start per row; every start runs its own iteration (its own damping,
@@ -49,9 +49,18 @@ def _lm(fun, x0, lower, upper, free):
     whose gradient points out of the box is held there for the step (a projected
     active-set step); steps are clipped into the box.  Returns ``(x, residuals, cost)``
     per start, in the order of the starts.
+
+    With ``by_row``, the starts may belong to different problems (of one number of
+    residuals): ``lower`` and ``upper`` are then one row per start, and ``fun(X, rows)``
+    is told the start each row of ``X`` belongs to.  Every operation is element by
+    element or per start, so a start ends where it would alone, to the bit.
     """
-    x = np.clip(np.array(x0, dtype=float, ndmin=2), lower, upper)
-    r = np.array(fun(x), dtype=float)
+    x = np.array(x0, dtype=float, ndmin=2)
+    lower = np.broadcast_to(np.asarray(lower, dtype=float), x.shape)
+    upper = np.broadcast_to(np.asarray(upper, dtype=float), x.shape)
+    call = fun if by_row else (lambda xs, rows: fun(xs))
+    x = np.clip(x, lower, upper)
+    r = np.array(call(x, np.arange(x.shape[0])), dtype=float)
     cost = np.einsum("ij,ij->i", r, r)
     lam = np.full(x.shape[0], 1e-3)
     running = np.ones(x.shape[0], dtype=bool)
@@ -59,10 +68,10 @@ def _lm(fun, x0, lower, upper, free):
         idx = np.flatnonzero(running)
         if not idx.size:
             break
-        xr = x[idx]
-        jac = _jacobian(fun, xr, lower, upper, free)  # (starts, residuals, parameters)
+        xr, lo, up = x[idx], lower[idx], upper[idx]
+        jac = _jacobian(call, xr, lo, up, free, idx)  # (starts, residuals, parameters)
         grad = np.einsum("kmp,km->kp", jac, r[idx])
-        held = ((xr <= lower) & (grad > 0.0)) | ((xr >= upper) & (grad < 0.0))
+        held = ((xr <= lo) & (grad > 0.0)) | ((xr >= up) & (grad < 0.0))
         active = free & ~held
         stuck = ~active.any(axis=1)
         running[idx[stuck]] = False
@@ -72,7 +81,8 @@ def _lm(fun, x0, lower, upper, free):
             break
         a, diag, rhs = _normal_equations(jac, grad, active)
         taken, new_x, new_r, new_cost, new_lam = _damped_step(
-            fun, xr, lam[idx], cost[idx], a, diag, rhs, active, lower, upper, r.shape[1])
+            call, xr, lam[idx], cost[idx], a, diag, rhs, active, lower[idx], upper[idx],
+            r.shape[1], idx)
         refused = taken < 0
         running[idx[refused]] = False
         ok = ~refused
@@ -105,14 +115,15 @@ def _normal_equations(jac, grad, active):
     return a, diag, rhs
 
 
-def _damped_step(fun, xr, lam, cost, a, diag, rhs, active, lower, upper, size):
+def _damped_step(fun, xr, lam, cost, a, diag, rhs, active, lower, upper, size, starts):
     """The first damped step of each start that does not raise its cost.
 
     The damped steps for lam, 4 lam, 16 lam, ... (:data:`_TRIALS` of them) are tried a
     chunk at a time, each chunk in one evaluation; a start takes the first step that
     does not raise its cost, as a loop raising lam after each refusal would.  Returns
     ``(taken, x, residuals, cost, lam)`` per start, ``taken`` being -1 where every
-    trial was refused (the other rows are then unset).
+    trial was refused (the other rows are then unset).  ``lower`` and ``upper`` are one
+    row per start, ``starts`` the start of each (``fun(X, starts)``).
     """
     p = xr.shape[1]
     eye = np.eye(p)
@@ -131,8 +142,9 @@ def _damped_step(fun, xr, lam, cost, a, diag, rhs, active, lower, upper, size):
         systems = a[todo, None] + lams[:, :, None, None] * (damp[:, None, :, None] * eye)
         steps = np.linalg.solve(systems, np.broadcast_to(
             rhs[todo, None, :, None], systems.shape[:3] + (1,)))[..., 0]
-        trial = np.clip(xr[todo, None, :] + steps, lower, upper)
-        r_trial = np.asarray(fun(trial.reshape(-1, p))).reshape(trial.shape[:2] + (-1,))
+        trial = np.clip(xr[todo, None, :] + steps, lower[todo, None, :], upper[todo, None, :])
+        r_trial = np.asarray(fun(trial.reshape(-1, p), np.repeat(starts[todo], trial.shape[1]))
+                             ).reshape(trial.shape[:2] + (-1,))
         costs = np.einsum("tcm,tcm->tc", r_trial, r_trial)
         ok = costs <= cost[todo, None]
         got = ok.any(axis=1)
@@ -147,30 +159,36 @@ def _damped_step(fun, xr, lam, cost, a, diag, rhs, active, lower, upper, size):
     return taken, new_x, new_r, new_cost, new_lam
 
 
-def _jacobian(fun, x, lower, upper, free):
+def _jacobian(fun, x, lower, upper, free, rows=None):
     """Central differences inside the box (one-sided at a bound).
 
-    ``x`` is one parameter vector (the Jacobian is ``(residuals, parameters)``) or one
-    per row (then ``(rows, residuals, parameters)``).  Every displaced point of every
-    row is evaluated in one call of ``fun``, which takes a stack of parameter vectors
-    and returns one residual row each.  A held parameter's column is zero.
+    ``x`` is one parameter vector (the Jacobian is ``(residuals, parameters)``, ``fun(X)``
+    takes a stack of parameter vectors and returns one residual row each) or one per row
+    (then ``(rows, residuals, parameters)``, ``lower`` and ``upper`` one row per row of
+    ``x`` or one for all, and ``fun(X, starts)`` is told which of ``rows`` each vector is
+    displaced from).  Every displaced point of every row is evaluated in one call of
+    ``fun``.  A held parameter's column is zero.
     """
     x = np.asarray(x, dtype=float)
     if x.ndim == 1:
-        return _jacobian(fun, x[None, :], lower, upper, free)[0]
+        return _jacobian(lambda xs, starts: fun(xs), x[None, :], lower, upper, free,
+                         np.zeros(1, dtype=int))[0]
     k, p = x.shape
+    lower = np.broadcast_to(np.asarray(lower, dtype=float), x.shape)
+    upper = np.broadcast_to(np.asarray(upper, dtype=float), x.shape)
     moved = [i for i in range(p) if free[i]]
     if not moved:
-        size = np.asarray(fun(x)).shape[-1]
+        size = np.asarray(fun(x, rows)).shape[-1]
         return np.zeros((k, size, p))
     stack = np.repeat(x[:, None, :], 2 * len(moved), axis=1)  # (k, 2 F, p)
     for j, i in enumerate(moved):
-        stack[:, 2 * j, i] = np.minimum(x[:, i] + _FD_STEP, upper[i])
-        stack[:, 2 * j + 1, i] = np.maximum(x[:, i] - _FD_STEP, lower[i])
-    rows = np.asarray(fun(stack.reshape(-1, p))).reshape(k, 2 * len(moved), -1)
-    jac = np.zeros((k, rows.shape[-1], p))
+        stack[:, 2 * j, i] = np.minimum(x[:, i] + _FD_STEP, upper[:, i])
+        stack[:, 2 * j + 1, i] = np.maximum(x[:, i] - _FD_STEP, lower[:, i])
+    out = fun(stack.reshape(-1, p), np.repeat(rows, 2 * len(moved)))
+    rows_r = np.asarray(out).reshape(k, 2 * len(moved), -1)
+    jac = np.zeros((k, rows_r.shape[-1], p))
     for j, i in enumerate(moved):
-        jac[:, :, i] = ((rows[:, 2 * j] - rows[:, 2 * j + 1])
+        jac[:, :, i] = ((rows_r[:, 2 * j] - rows_r[:, 2 * j + 1])
                         / (stack[:, 2 * j, i] - stack[:, 2 * j + 1, i])[:, None])
     return jac
 
@@ -256,21 +274,79 @@ def _solve(problem: _Problem, r_fixed: float | None):
     ``(x, relative residuals, cost)`` reached from the best grid starts, and the
     ``lower``, ``upper`` and ``free`` arrays used.
     """
+    return _solve_many([problem], [r_fixed])[0]
+
+
+def _box(problem: _Problem, r_fixed: float | None):
+    """The search grid and box of one problem: ``(x0_grid, x1_grid, lower, upper, free)``."""
     x1_grid = np.concatenate([[0.0], np.geomspace(1e-4, problem.upper[1], _GRID_T - 1)])
     if r_fixed is None:
         x0_grid = np.linspace(problem.lower[0], problem.upper[0], _GRID_R)
-        free = np.array([True, True])
-        lower, upper = problem.lower, problem.upper
-    else:
-        x0_grid = np.array([math.log(r_fixed / problem.r_ref)])
-        free = np.array([False, True])
-        lower = np.array([x0_grid[0], problem.lower[1]])
-        upper = np.array([x0_grid[0], problem.upper[1]])
-    cost = problem.grid_cost(x0_grid, x1_grid)
-    starts = np.array([[x0_grid[i], x1_grid[j]] for i, j in _grid_starts(cost, _STARTS)])
-    found = _lm(problem.residual, starts, lower, upper, free)
-    found.sort(key=lambda item: item[2])
-    return found, lower, upper, free
+        return x0_grid, x1_grid, problem.lower, problem.upper, np.array([True, True])
+    x0_grid = np.array([math.log(r_fixed / problem.r_ref)])
+    lower = np.array([x0_grid[0], problem.lower[1]])
+    upper = np.array([x0_grid[0], problem.upper[1]])
+    return x0_grid, x1_grid, lower, upper, np.array([False, True])
+
+
+def _solve_many(problems: list[_Problem], fixed: list[float | None]) -> list[tuple]:
+    """:func:`_solve` of several problems at once, each one's result as alone, to the bit.
+
+    Problems with as many points and the same free parameters share one
+    Levenberg-Marquardt iteration (:func:`_lm` with ``by_row``: each start keeps its own
+    damping and end), so a hundred fits cost about what a few do one at a time.
+    """
+    out: list = [None] * len(problems)
+    groups: dict[tuple, list[int]] = {}
+    for i, (pr, rf) in enumerate(zip(problems, fixed, strict=True)):
+        groups.setdefault((rf is None, pr.loads.size), []).append(i)
+    for members in groups.values():
+        boxes = [_box(problems[i], fixed[i]) for i in members]
+        starts, owner = [], []
+        for k, i in enumerate(members):
+            x0_grid, x1_grid = boxes[k][:2]
+            cost = problems[i].grid_cost(x0_grid, x1_grid)
+            for a, b in _grid_starts(cost, _STARTS):
+                starts.append([x0_grid[a], x1_grid[b]])
+                owner.append(k)
+        stack = _Stack([problems[i] for i in members], owner)
+        found = _lm(stack.residual, np.array(starts),
+                    np.array([boxes[k][2] for k in owner]),
+                    np.array([boxes[k][3] for k in owner]), boxes[0][4], by_row=True)
+        for k, i in enumerate(members):
+            mine = [item for item, o in zip(found, owner, strict=True) if o == k]
+            mine.sort(key=lambda item: item[2])
+            out[i] = (mine, *boxes[k][2:])
+    return out
+
+
+class _Stack:
+    """The residuals of several problems of as many points, for starts of each.
+
+    :meth:`residual` is :meth:`_Problem.residual` row by row: the same operations on the
+    same numbers, each row's problem that of its start (``owner``: the problem of each
+    start, an index into ``problems``).
+    """
+
+    def __init__(self, problems: list[_Problem], owner: list[int]):
+        self.owner = np.array(owner, dtype=int)
+        self.n = problems[0].loads.size
+        self.loads2 = np.stack([p._loads2 for p in problems])
+        self.levels2 = np.stack([p._levels2 for p in problems])
+        self.times = np.stack([p.times for p in problems])
+        self.r_ref = np.array([p.r_ref for p in problems])
+        self.t_ref = np.array([p.t_ref for p in problems])
+
+    def residual(self, x, starts):
+        """Relative residuals at each row of ``x`` (shape ``(N, 2)``), displaced from the
+        start ``starts[row]``."""
+        which = self.owner[starts]
+        x = np.asarray(x, dtype=float)
+        r_out = self.r_ref[which] * np.exp(x[:, 0])
+        t_ramp = x[:, 1] * self.t_ref[which]
+        t = rc._ramp_rc_crossing(self.levels2[which], t_ramp[:, None],
+                                 r_out[:, None] * self.loads2[which])
+        return (t[:, self.n:] - t[:, :self.n]) / self.times[which] - 1.0
 
 
 def _flat_ramp_limit(problem: _Problem, r_out: float, t_ramp: float, t_hi: float) -> float:
