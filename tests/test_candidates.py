@@ -234,6 +234,27 @@ def test_batched_edges_are_the_engines_own(monkeypatch):
     assert_same_ranking(fast, cand.rank_candidates(DEMO_DESIGN, "U12"))
 
 
+def test_the_corners_of_a_toleranced_position_are_solved_ahead(monkeypatch):
+    # the demo's flash bus carries supply and length tolerances: the edges of every
+    # candidate's corner boards are solved in the batch, none by the engine a line at a
+    # time as the one-at-a-time path does; the rankings are the same
+    from pinlib.physics import waveform as wf
+    from tests.spiparts import add_generated
+
+    lib = load_library(env=False)
+    add_generated(lib, 8)
+    d = load_design(DEMO, library=lib)
+    calls = []
+    solve = wf.distributed_responses
+    monkeypatch.setattr(wf, "distributed_responses",
+                        lambda cases: calls.append(len(cases)) or solve(cases))
+    fast = cand.rank_candidates(d, "U7")
+    assert not calls
+    slow = cand.rank_candidates_slow(d, "U7")
+    assert len(calls) > len(slow.candidates)
+    assert_same_ranking(fast, slow)
+
+
 def test_one_at_a_time_solves_each_edge_once_per_candidate(monkeypatch):
     # each candidate is evaluated in one run, as `pinlib check` evaluates a design: an
     # edge its bus analyses twice (the corners of its tolerances, the budget) is solved

@@ -10,6 +10,8 @@ solver.
 from __future__ import annotations
 
 import os
+from collections.abc import Iterator
+from contextlib import contextmanager
 
 from pinlib.core import messages as M
 from pinlib.core.errors import PinlibError
@@ -21,7 +23,7 @@ from pinlib.model.design import Bus, Design, load_design
 from pinlib.model.result import BusResult, DesignResult
 
 __all__ = ["ENGINES", "check_design", "check_file", "design_result", "engine",
-           "evaluate_bus", "evaluate_couplings"]
+           "evaluate_bus", "evaluate_couplings", "located_errors"]
 
 #: The engine module of each protocol; each has ``evaluate_bus(bus, design) -> BusResult``.
 ENGINES = {name: p.engine for name, p in PROTOCOLS.items()}
@@ -49,22 +51,30 @@ def engine(protocol: str):
     return _IMPORT[PROTOCOLS[protocol].engine]()
 
 
-def evaluate_bus(bus: Bus, design: Design) -> BusResult:
+def evaluate_bus(bus: Bus, design: Design, **given) -> BusResult:
     """Evaluate one bus with the engine of its protocol.
 
     An error an engine meets without knowing the file (a value of a part refused at
     the bus's supply, a geometry the line formulas refuse) is raised again naming where
     it comes from: the part file and line of the pin's value, or the design file and the
-    line of the bus.
+    line of the bus (:func:`located_errors`).
 
     The bus is evaluated in a :func:`pinlib.engines.memo.run_scope` (joining the
     caller's, as :func:`check_design` opens one for all its buses): a waveform its
     analyses solve with identical inputs twice (a tolerance corner, the timing budget)
-    is solved once.
+    is solved once.  ``given``: what the caller has already made for the engine (the
+    push-pull engine's ``nominal``).
     """
+    with located_errors(bus, design), run_scope():
+        return engine(bus.protocol).evaluate_bus(bus, design, **given)
+
+
+@contextmanager
+def located_errors(bus: Bus, design: Design) -> Iterator[None]:
+    """Raise an error the block meets without a file again, naming where it comes from
+    (see :func:`evaluate_bus`)."""
     try:
-        with run_scope():
-            return engine(bus.protocol).evaluate_bus(bus, design)
+        yield
     except PinlibError as err:
         if err.file is not None:
             raise

@@ -205,7 +205,7 @@ def _note_unchecked(result, receivers) -> None:
 # --------------------------------------------------------------------------- entry
 
 
-def evaluate_bus(bus: Bus, design: Design) -> BusResult:
+def evaluate_bus(bus: Bus, design: Design, *, nominal: BusResult | None = None) -> BusResult:
     """Evaluate an ``spi`` or ``gpio`` bus, every check at its worst corner.
 
     :func:`evaluate_board` on the bus as designed, then on the corners of its tolerances
@@ -218,6 +218,9 @@ def evaluate_bus(bus: Bus, design: Design) -> BusResult:
         The bus, from a loaded design. [1]
     design : Design
         The design it belongs to (warning margin, library). [1]
+    nominal : BusResult, optional
+        :func:`evaluate_board` of the bus, when the caller has made it (a study that
+        solves every candidate's corners ahead, :mod:`pinlib.studies.ppcandidates`). [1]
 
     Returns
     -------
@@ -235,7 +238,8 @@ def evaluate_bus(bus: Bus, design: Design) -> BusResult:
     from pinlib.engines.ppvariant import parameter_specs
     from pinlib.engines.ppworst import at_worst_corners
 
-    nominal = evaluate_board(bus, design)
+    if nominal is None:
+        nominal = evaluate_board(bus, design)
     if not parameter_specs(bus):
         return nominal  # nothing toleranced: no corners (and no corner arrays to set up)
     return at_worst_corners(bus, design, nominal, evaluate_board,

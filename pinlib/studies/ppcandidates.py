@@ -25,9 +25,10 @@ from collections.abc import Iterator
 
 from pinlib.core.errors import PinlibError
 from pinlib.engines import memo
-from pinlib.engines.dispatch import evaluate_bus
+from pinlib.engines.dispatch import evaluate_bus, located_errors
+from pinlib.engines.ppworst import corner_line_inputs
 from pinlib.engines.pushline.batchsolve import prefetch
-from pinlib.engines.pushpull import line_inputs
+from pinlib.engines.pushpull import evaluate_board, line_inputs
 from pinlib.engines.readout import summaries_only
 from pinlib.library.schema import Part
 from pinlib.model.design import Bus, Design
@@ -42,6 +43,11 @@ __all__ = ["CHUNK", "evaluate_batched", "batched_note"]
 #: 1,000 candidates at the display position at 256 a chunk, 66 at 512, for about 5 %
 #: of the ranking's time).
 CHUNK = 512
+
+#: Candidates whose corners' edges are solved together (a bus with tolerances: each
+#: candidate's first corners, :func:`pinlib.engines.ppworst.corner_line_inputs`, about
+#: four times its nominal board's edges, held until those candidates are done).
+CORNER_CHUNK = 64
 
 
 def evaluate_batched(design: Design, ref: str, parts: list[Part],
@@ -80,14 +86,46 @@ def evaluate_batched(design: Design, ref: str, parts: list[Part],
                     continue  # the evaluation below meets it again and reports it
             prefetch(inputs)
             done = []  # yielded after the scope ends: no memo outlives the chunk
-            for p in chunk:
-                try:
-                    sw = swapped.get(p.id) or design.with_parts({ref: p.id}, keep_others=True)
-                    with memo.transient():  # its own solves (corners...) go with it
-                        done.append((p, [evaluate_bus(sw.bus(b.id), sw) for b in buses]))
-                except PinlibError as err:
-                    done.append((p, err))
+            for first in range(0, len(chunk), CORNER_CHUNK):
+                done += _with_corners(design, ref, chunk[first:first + CORNER_CHUNK],
+                                      buses, swapped)
         yield from done
+
+
+def _with_corners(design: Design, ref: str, parts: list[Part], buses: list[Bus],
+                  swapped: dict) -> list[tuple[Part, list | PinlibError]]:
+    """Each candidate's results on ``buses``: the boards as designed first, then the
+    edges of every candidate's first corners solved together, then the corners."""
+    nominal: dict = {}
+    ahead = []
+    for p in parts:
+        try:
+            sw = swapped.get(p.id) or design.with_parts({ref: p.id}, keep_others=True)
+            got = []
+            for b in buses:
+                bus = sw.bus(b.id)
+                with memo.transient(), located_errors(bus, sw):
+                    got.append(evaluate_board(bus, sw))
+                ahead += corner_line_inputs(bus, sw, got[-1])
+            nominal[p.id] = (sw, got)
+        except PinlibError as err:
+            nominal[p.id] = err
+    done = []
+    with memo.transient():  # the corners' edges go when these candidates are done
+        prefetch(ahead)
+        for p in parts:
+            got = nominal[p.id]
+            if isinstance(got, PinlibError):
+                done.append((p, got))
+                continue
+            sw, boards = got
+            try:
+                with memo.transient():  # its own solves go with it
+                    done.append((p, [evaluate_bus(sw.bus(b.id), sw, nominal=n)
+                                     for b, n in zip(buses, boards, strict=True)]))
+            except PinlibError as err:
+                done.append((p, err))
+    return done
 
 
 def batched_note(bus: Bus) -> str:
