@@ -23,7 +23,7 @@ from pinlib.model.design import Bus, Design, load_design
 from pinlib.model.result import BusResult, DesignResult
 
 __all__ = ["ENGINES", "check_design", "check_file", "design_result", "engine",
-           "evaluate_bus", "evaluate_couplings", "located_errors"]
+           "evaluate_bus", "evaluate_couplings"]
 
 #: The engine module of each protocol; each has ``evaluate_bus(bus, design) -> BusResult``.
 ENGINES = {name: p.engine for name, p in PROTOCOLS.items()}

@@ -36,15 +36,14 @@ from pinlib.engines.ppvariant import (
     check_names,
     chosen_resistors,
     flat_checks,
-    line_of_key,
     parameter_specs,
     vary_bus,
 )
 from pinlib.model.design import Bus, Design
 from pinlib.model.result import BusResult
 
-__all__ = ["EXHAUSTIVE_LIMIT", "search", "first_boards", "corner_line_inputs", "rank_margin",
-           "at_worst_corners", "method_text", "BoardRows"]
+__all__ = ["EXHAUSTIVE_LIMIT", "search", "first_boards", "rank_margin", "at_worst_corners",
+           "method_text", "BoardRows"]
 
 #: Every vertex of the tolerance box is evaluated up to this many parameters (2**6 = 64
 #: evaluations, most of whose waveforms the run memo shares); above it, the screened
@@ -113,48 +112,6 @@ def first_boards(k: int, limit: int = EXHAUSTIVE_LIMIT) -> np.ndarray:
     for i in range(k):
         pts[1 + 2 * i, i], pts[2 + 2 * i, i] = -1.0, 1.0
     return pts
-
-
-def corner_line_inputs(bus: Bus, design: Design, nominal: BusResult) -> list:
-    """The line analyses the corner search of ``bus`` will make first, one per line and
-    distinct set of the factors that line depends on (its own, and those every line
-    shares), for a study to solve their edges ahead
-    (:func:`pinlib.engines.pushline.batchsolve.prefetch`).
-
-    Parameters
-    ----------
-    bus : Bus
-        An ``spi`` or ``gpio`` bus of ``design``. [1]
-    design : Design
-        The design. [1]
-    nominal : BusResult
-        The engine's result of the bus as designed (its "auto" series resistors are
-        kept at every corner). [1]
-
-    Returns
-    -------
-    list of LineInputs
-        Those of :func:`first_boards` other than the nominal board, each board's line
-        built as :func:`at_worst_corners` builds it (so each edge's key is the one the
-        search asks for); empty where nothing is toleranced.
-    """
-    from pinlib.engines.pushpull import line_inputs
-
-    specs = parameter_specs(bus)
-    if not specs:
-        return []
-    u = first_boards(len(specs))
-    chosen = chosen_resistors(nominal)
-    out = []
-    for sig in bus.lines:
-        cols = [i for i, s in enumerate(specs) if line_of_key(s[-1]) in (None, sig)]
-        for row in np.unique(u[:, cols], axis=0):
-            if not row.any():
-                continue  # the nominal board's line: analysed already
-            f = {specs[i][-1]: 1.0 + specs[i][3] * x for i, x in zip(cols, row, strict=True)}
-            varied = vary_bus(bus, f.get, chosen)
-            out += [li for li in line_inputs(varied, design) if li.signal == sig]
-    return out
 
 
 def _nan_low(mg: np.ndarray) -> np.ndarray:

@@ -25,6 +25,8 @@ from __future__ import annotations
 
 from dataclasses import replace
 
+import numpy as np
+
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError
 from pinlib.core.tomlfile import dotted
@@ -36,7 +38,7 @@ from pinlib.model.design.route import gpio_pin  # the rule of a device's GPIO pi
 from pinlib.model.result import BusResult, Check
 
 __all__ = ["evaluate_bus", "evaluate_board", "evaluate_gpio", "gpio_pin", "supply_checks",
-           "supply_rows", "line_inputs", "gpio_line_inputs"]
+           "supply_rows", "line_inputs", "gpio_line_inputs", "corner_line_inputs"]
 
 
 # --------------------------------------------------------------------------- GPIO
@@ -129,6 +131,56 @@ def line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
     if bus.protocol == "spi":
         return spi_line_inputs(bus, design)
     return gpio_line_inputs(bus, design)
+
+
+def corner_line_inputs(bus: Bus, design: Design, nominal: BusResult) -> list:
+    """The line analyses the corner search of ``bus``
+    (:func:`pinlib.engines.ppworst.search`) will make first, one per line and
+    distinct set of the factors that line depends on (its own, and those every line
+    shares), for a study to solve their edges ahead
+    (:func:`pinlib.engines.pushline.batchsolve.prefetch`).
+
+    Parameters
+    ----------
+    bus : Bus
+        An ``spi`` or ``gpio`` bus of ``design``. [1]
+    design : Design
+        The design. [1]
+    nominal : BusResult
+        The engine's result of the bus as designed (its "auto" series resistors are
+        kept at every corner). [1]
+
+    Returns
+    -------
+    list of LineInputs
+        Those of :func:`~pinlib.engines.ppworst.first_boards` other than the nominal
+        board, each board's line built as :func:`~pinlib.engines.ppworst.
+        at_worst_corners` builds it (so each edge's key is the one the search asks for);
+        empty where nothing is toleranced.
+    """
+    from pinlib.engines.ppvariant import (
+        chosen_resistors,
+        line_of_key,
+        parameter_specs,
+        vary_bus,
+    )
+    from pinlib.engines.ppworst import first_boards
+
+    specs = parameter_specs(bus)
+    if not specs:
+        return []
+    u = first_boards(len(specs))
+    chosen = chosen_resistors(nominal)
+    out = []
+    for sig in bus.lines:
+        cols = [i for i, s in enumerate(specs) if line_of_key(s[-1]) in (None, sig)]
+        for row in np.unique(u[:, cols], axis=0):
+            if not row.any():
+                continue  # the nominal board's line: analysed already
+            f = {specs[i][-1]: 1.0 + specs[i][3] * x for i, x in zip(cols, row, strict=True)}
+            varied = vary_bus(bus, f.get, chosen)
+            out += [li for li in line_inputs(varied, design) if li.signal == sig]
+    return out
 
 
 def evaluate_gpio(bus: Bus, design: Design, *, analysis: dict | None = None) -> BusResult:

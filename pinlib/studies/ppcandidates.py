@@ -13,10 +13,15 @@ lives for the chunk, with the figures read off them
 from there.  The engine runs for summaries only
 (:func:`pinlib.engines.readout.summaries_only`): what only explains a result (a long
 line's edges without the series resistor "auto" chose) is left out, every check and
-figure the same.  Edges the prefetch leaves to the engine are solved one at a
-time: a lumped line's (closed form), a record that had to be lengthened to settle, the
-boards at the corners of a bus's tolerances (each candidate's corners are found by its own
-results), and a series resistor "auto" chose on a short line.
+figure the same.  The prefetch fits the candidates' driver pins together too
+(:func:`pinlib.engines.pushline.drive.prefit`).  On a bus with tolerances, each
+candidate's corners are searched from its own board as designed: those boards are
+evaluated first, :data:`CORNER_CHUNK` candidates at a time, then the edges of all their
+first corner boards (:func:`pinlib.engines.pushpull.corner_line_inputs`) solved
+together, then each search.  Edges the prefetch leaves to the engine are solved one at
+a time: a lumped line's (closed form), a record that had to be lengthened to settle,
+the combined corners of a search over many parameters, and a series resistor "auto"
+chose on a short line.
 """
 
 from __future__ import annotations
@@ -26,9 +31,8 @@ from collections.abc import Iterator
 from pinlib.core.errors import PinlibError
 from pinlib.engines import memo
 from pinlib.engines.dispatch import evaluate_bus, located_errors
-from pinlib.engines.ppworst import corner_line_inputs
 from pinlib.engines.pushline.batchsolve import prefetch
-from pinlib.engines.pushpull import evaluate_board, line_inputs
+from pinlib.engines.pushpull import corner_line_inputs, evaluate_board, line_inputs
 from pinlib.engines.readout import summaries_only
 from pinlib.library.schema import Part
 from pinlib.model.design import Bus, Design
@@ -45,7 +49,7 @@ __all__ = ["CHUNK", "evaluate_batched", "batched_note"]
 CHUNK = 512
 
 #: Candidates whose corners' edges are solved together (a bus with tolerances: each
-#: candidate's first corners, :func:`pinlib.engines.ppworst.corner_line_inputs`, about
+#: candidate's first corners, :func:`pinlib.engines.pushpull.corner_line_inputs`, about
 #: four times its nominal board's edges, held until those candidates are done).
 CORNER_CHUNK = 64
 
