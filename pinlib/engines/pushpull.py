@@ -68,7 +68,7 @@ def gpio_analyses(bus: Bus, design: Design) -> dict:
     return {li.signal: li.analyse() for li in gpio_line_inputs(bus, design)}
 
 
-def gpio_line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
+def gpio_line_inputs(bus: Bus, design: Design, only: str | None = None) -> list[LineInputs]:
     """The inputs of every line analysis :func:`gpio_analyses` makes, in its order.
 
     Parameters
@@ -77,6 +77,8 @@ def gpio_line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
         A ``gpio`` bus of ``design``. [1]
     design : Design
         The loaded design. [1]
+    only : str, optional
+        The signal of the one line wanted; every line by default. [1]
 
     Returns
     -------
@@ -89,6 +91,8 @@ def gpio_line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
     """
     out = []
     for sig, line in bus.lines.items():
+        if only not in (None, sig):
+            continue
         eps = []
         for d in bus.devices:
             got = gpio_pin(d, sig, len(bus.lines))
@@ -108,7 +112,7 @@ def gpio_line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
     return out
 
 
-def line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
+def line_inputs(bus: Bus, design: Design, only: str | None = None) -> list[LineInputs]:
     """The inputs of every line analysis :func:`evaluate_board` makes on an ``spi`` or
     ``gpio`` bus (for :func:`pinlib.engines.pushline.batchsolve.prefetch`).
 
@@ -118,6 +122,8 @@ def line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
         An ``spi`` or ``gpio`` bus of ``design``. [1]
     design : Design
         The loaded design. [1]
+    only : str, optional
+        The signal of the one line wanted; every line by default. [1]
 
     Returns
     -------
@@ -129,8 +135,8 @@ def line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
         As :func:`evaluate_board`.
     """
     if bus.protocol == "spi":
-        return spi_line_inputs(bus, design)
-    return gpio_line_inputs(bus, design)
+        return spi_line_inputs(bus, design, only)
+    return gpio_line_inputs(bus, design, only)
 
 
 def corner_line_inputs(bus: Bus, design: Design, nominal: BusResult) -> list:
@@ -179,7 +185,7 @@ def corner_line_inputs(bus: Bus, design: Design, nominal: BusResult) -> list:
                 continue  # the nominal board's line: analysed already
             f = {specs[i][-1]: 1.0 + specs[i][3] * x for i, x in zip(cols, row, strict=True)}
             varied = vary_bus(bus, f.get, chosen)
-            out += [li for li in line_inputs(varied, design) if li.signal == sig]
+            out += line_inputs(varied, design, only=sig)
     return out
 
 

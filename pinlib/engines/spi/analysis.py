@@ -196,7 +196,7 @@ def _spi_lines(bus: Bus, design: Design) -> tuple[dict, Device, list, list, list
     return out, controller, peripherals, bridges, notes
 
 
-def spi_line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
+def spi_line_inputs(bus: Bus, design: Design, only: str | None = None) -> list[LineInputs]:
     """The inputs of every line analysis :func:`spi_analysis` makes on the bus, in its
     order (a batched study solves their edges first:
     :func:`pinlib.engines.pushline.batchsolve.prefetch`).
@@ -207,6 +207,8 @@ def spi_line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
         An ``spi`` bus of ``design``. [1]
     design : Design
         The loaded design. [1]
+    only : str, optional
+        The signal of the one line wanted; every line by default. [1]
 
     Returns
     -------
@@ -217,7 +219,7 @@ def spi_line_inputs(bus: Bus, design: Design) -> list[LineInputs]:
     DesignError
         As :func:`spi_analysis`.
     """
-    return list(line_setup(bus, design)[0].values())
+    return list(line_setup(bus, design, only)[0].values())
 
 
 def line_setup(bus: Bus, design: Design,
