@@ -293,6 +293,23 @@ def test_progress_callback():
     assert seen and seen[-1] == (len(r.candidates), len(r.candidates))
 
 
+def test_progress_moves_with_each_candidate_at_an_spi_position(monkeypatch):
+    # the batched ranking yields its results a chunk of 512 at a time; the bar moves as
+    # each candidate's evaluation ends, not when the chunk's results come
+    from pinlib.studies import ppcandidates
+
+    evaluated = []
+    real = ppcandidates.evaluate_bus
+    monkeypatch.setattr(ppcandidates, "evaluate_bus",
+                        lambda *a, **k: evaluated.append(1) or real(*a, **k))
+    seen = []
+    r = cand.rank_candidates(DEMO_DESIGN, "U7", progress=lambda done, total: seen.append(
+        (done, len(evaluated))))
+    done = [d for d, _ in seen if d > 0]
+    assert len(r.candidates) > 3 and done == list(range(1, len(r.candidates) + 1))
+    assert [n for d, n in seen if d > 0] == done  # each step as its candidate ends
+
+
 # --------------------------------------------------------------------------- command line
 
 

@@ -786,14 +786,15 @@ class _Summaries:
     def add_pp_buses(self, bar) -> None:
         """Every candidate on the push-pull buses, their edges solved in batches."""
         sub = [(b, d) for b, d in self.places if b in self.pp_buses]
-        for p, got in evaluate_batched(self.design, self.ref, self.parts, self.pp_buses):
+        step = len(self.pp_buses)
+        for p, got in evaluate_batched(self.design, self.ref, self.parts, self.pp_buses,
+                                       tick=lambda: bar.update(step)):
             if isinstance(got, PinlibError):
                 self.errors.setdefault(p.id, got)
             else:
                 for r, pl in zip(got, sub, strict=True):
                     st, m, w, f, ms = _summary_of([r], [pl])
                     self.per[p.id][r.id] = (STATUSES.index(st), m, w, f[r.id], ms)
-            bar.update(len(self.pp_buses))
 
     def add_slow_buses(self, bar) -> None:
         """Every candidate on the buses evaluated one at a time, the design rebuilt with it."""

@@ -26,7 +26,7 @@ chose on a short line.
 
 from __future__ import annotations
 
-from collections.abc import Iterator
+from collections.abc import Callable, Iterator
 
 from pinlib.core.errors import PinlibError
 from pinlib.engines import memo
@@ -54,8 +54,9 @@ CHUNK = 512
 CORNER_CHUNK = 64
 
 
-def evaluate_batched(design: Design, ref: str, parts: list[Part],
-                     buses: list[Bus]) -> Iterator[tuple[Part, list | PinlibError]]:
+def evaluate_batched(design: Design, ref: str, parts: list[Part], buses: list[Bus],
+                     tick: Callable[[], None] | None = None
+                     ) -> Iterator[tuple[Part, list | PinlibError]]:
     """Each candidate's engine results on ``buses``, their edges solved in batches.
 
     Parameters
@@ -68,6 +69,9 @@ def evaluate_batched(design: Design, ref: str, parts: list[Part],
         The candidates. [1]
     buses : list of Bus
         Push-pull buses of the position (no bridging part). [1]
+    tick : callable, optional
+        Called as each candidate's evaluation ends (a progress bar: the results come
+        a chunk at a time, after its memo is dropped). [1]
 
     Yields
     ------
@@ -92,12 +96,13 @@ def evaluate_batched(design: Design, ref: str, parts: list[Part],
             done = []  # yielded after the scope ends: no memo outlives the chunk
             for first in range(0, len(chunk), CORNER_CHUNK):
                 done += _with_corners(design, ref, chunk[first:first + CORNER_CHUNK],
-                                      buses, swapped)
+                                      buses, swapped, tick or (lambda: None))
         yield from done
 
 
 def _with_corners(design: Design, ref: str, parts: list[Part], buses: list[Bus],
-                  swapped: dict) -> list[tuple[Part, list | PinlibError]]:
+                  swapped: dict, tick: Callable[[], None]
+                  ) -> list[tuple[Part, list | PinlibError]]:
     """Each candidate's results on ``buses``: the boards as designed first, then the
     edges of every candidate's first corners solved together, then the corners."""
     nominal: dict = {}
@@ -121,6 +126,7 @@ def _with_corners(design: Design, ref: str, parts: list[Part], buses: list[Bus],
             got = nominal[p.id]
             if isinstance(got, PinlibError):
                 done.append((p, got))
+                tick()
                 continue
             sw, boards = got
             try:
@@ -129,6 +135,7 @@ def _with_corners(design: Design, ref: str, parts: list[Part], buses: list[Bus],
                                      for b, n in zip(buses, boards, strict=True)]))
             except PinlibError as err:
                 done.append((p, err))
+            tick()
     return done
 
 
