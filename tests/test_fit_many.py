@@ -114,3 +114,22 @@ def test_the_ranking_at_a_driving_position_fits_no_pin_alone(monkeypatch):
     slow = cand.rank_candidates_slow(design, "U7")
     assert alone  # the one-at-a-time path fits each pin itself
     assert_same_ranking(batched, slow)
+
+
+@pytest.mark.filterwarnings("ignore::pinlib.core.errors.FitWarning")
+def test_fits_made_together_go_to_the_store_and_come_back_from_it(tmp_path, monkeypatch):
+    from pinlib.engines import fitstore
+
+    monkeypatch.setenv("PINLIB_CACHE_DIR", str(tmp_path))
+    store = fitstore.install()
+    assert store is not None
+    reqs = _requests(6, seed=11)
+    first = fit_drivers(reqs)
+    assert store.flush()
+    # a new process: nothing in memory, the file read back, nothing solved again
+    driver._FIT_CACHE.clear()
+    monkeypatch.setattr(driver, "FIT_STORE", fitstore.FitStore(store.path, store.version))
+    monkeypatch.setattr(fitting, "_solve_many",
+                        lambda problems, fixed: [] if not problems else pytest.fail("solved"))
+    for a, b in zip(first, fit_drivers(reqs), strict=True):
+        assert _same(a, b)
