@@ -132,29 +132,8 @@ def run(repeats: int = 3, quick: bool = False) -> list[Result]:
 
 def _spi(repeats: int, quick: bool) -> Result:
     """1,000 generated SPI peripherals at the demo's display position (see the notes)."""
-    from tests.spiparts import add_generated
-
     n = N_SPI // 10 if quick else N_SPI
-    lib = load_library(env=False)
-    add_generated(lib, n)
-    design = load_design(DEMO, library=lib)
-    fast = cand.rank_candidates(design, "U12")
-    t_fast = median_time(lambda: cand.rank_candidates(design, "U12"), max(1, repeats // 3),
-                         warmup=0)
-    start = time.perf_counter()
-    slow = cand.rank_candidates_slow(design, "U12")
-    t_slow = time.perf_counter() - start
-    if not same_ranking(fast, slow):
-        raise RuntimeError("the batched SPI ranking differs from the per-candidate one")
-    generated = sum(c.part.startswith("gen-spi-") for c in fast.candidates)
-    ratio = t_slow / t_fast
-    return Result(f"SPI candidate ranking: {generated:,} parts", t_fast,
-                  "the same ranking one candidate at a time", t_slow,
-                  target=f"ratio >= {SPI_TARGET:g}x",
-                  passed=ratio >= SPI_TARGET,
-                  extra=[f"{len(fast.candidates):,} ranked, rankings equal",
-                         f"{t_fast / len(fast.candidates) * 1e3:.1f} ms a candidate batched, "
-                         f"{t_slow / len(slow.candidates) * 1e3:.1f} ms one at a time"])
+    return _spi_at("U12", n, "SPI candidate ranking", repeats)
 
 
 def _spi_driving(repeats: int, quick: bool) -> Result:
@@ -163,29 +142,37 @@ def _spi_driving(repeats: int, quick: bool) -> Result:
     length tolerances (each candidate's corners).  Both paths start without the fits
     of the last run (a library's first ranking; the command line keeps fits between
     runs, :mod:`pinlib.engines.fitstore`)."""
+    n = N_DRIVING // 10 if quick else N_DRIVING
+    return _spi_at("U7", n, "SPI candidates driving CIPO, with corners", repeats,
+                   cold_fits=True)
+
+
+def _spi_at(ref: str, n: int, label: str, repeats: int, cold_fits: bool = False) -> Result:
+    """``n`` generated SPI peripherals ranked at ``ref`` of the demo, batched and one at a
+    time (``cold_fits``: each run without the driver fits of the run before)."""
     from pinlib.physics import driver
     from tests.spiparts import add_generated
 
-    n = N_DRIVING // 10 if quick else N_DRIVING
     lib = load_library(env=False)
     add_generated(lib, n)
     design = load_design(DEMO, library=lib)
 
-    def cold(rank):
-        driver._FIT_CACHE.clear()
-        return rank(design, "U7")
+    def rank(how):
+        if cold_fits:
+            driver._FIT_CACHE.clear()
+        return how(design, ref)
 
-    fast = cold(cand.rank_candidates)
-    t_fast = median_time(lambda: cold(cand.rank_candidates), max(1, repeats // 3), warmup=0)
+    fast = rank(cand.rank_candidates)
+    t_fast = median_time(lambda: rank(cand.rank_candidates), max(1, repeats // 3), warmup=0)
     start = time.perf_counter()
-    slow = cold(cand.rank_candidates_slow)
+    slow = rank(cand.rank_candidates_slow)
     t_slow = time.perf_counter() - start
     if not same_ranking(fast, slow):
-        raise RuntimeError("the batched SPI ranking at the flash position differs from the "
+        raise RuntimeError(f"the batched SPI ranking at {ref} differs from the "
                            "per-candidate one")
     generated = sum(c.part.startswith("gen-spi-") for c in fast.candidates)
     ratio = t_slow / t_fast
-    return Result(f"SPI candidates driving CIPO, with corners: {generated:,} parts", t_fast,
+    return Result(f"{label}: {generated:,} parts", t_fast,
                   "the same ranking one candidate at a time", t_slow,
                   target=f"ratio >= {SPI_TARGET:g}x",
                   passed=ratio >= SPI_TARGET,
