@@ -162,18 +162,24 @@ def _damped_step(fun, xr, lam, cost, a, diag, rhs, active, lower, upper, size, s
 def _jacobian(fun, x, lower, upper, free, rows=None):
     """Central differences inside the box (one-sided at a bound).
 
-    ``x`` is one parameter vector (the Jacobian is ``(residuals, parameters)``, ``fun(X)``
-    takes a stack of parameter vectors and returns one residual row each) or one per row
-    (then ``(rows, residuals, parameters)``, ``lower`` and ``upper`` one row per row of
-    ``x`` or one for all, and ``fun(X, starts)`` is told which of ``rows`` each vector is
-    displaced from).  Every displaced point of every row is evaluated in one call of
-    ``fun``.  A held parameter's column is zero.
+    ``x`` is one parameter vector (the Jacobian is ``(residuals, parameters)``) or one
+    per row (then ``(rows, residuals, parameters)``; ``lower`` and ``upper`` one row per
+    row of ``x`` or one for all).  Every displaced point of every row is evaluated in
+    one call of ``fun``, which takes a stack of parameter vectors and returns one
+    residual row each; given ``rows`` (the start each row of ``x`` is), it is called
+    ``fun(X, starts)``, told the start each vector is displaced from.  A held
+    parameter's column is zero.
     """
     x = np.asarray(x, dtype=float)
     if x.ndim == 1:
-        return _jacobian(lambda xs, starts: fun(xs), x[None, :], lower, upper, free,
-                         np.zeros(1, dtype=int))[0]
+        return _jacobian(fun, x[None, :], lower, upper, free)[0]
     k, p = x.shape
+    if rows is None:  # one problem: fun(X) alone
+        plain, rows = fun, np.zeros(k, dtype=int)
+
+        def fun(xs, starts):
+            return plain(xs)
+
     lower = np.broadcast_to(np.asarray(lower, dtype=float), x.shape)
     upper = np.broadcast_to(np.asarray(upper, dtype=float), x.shape)
     moved = [i for i in range(p) if free[i]]
