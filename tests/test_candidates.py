@@ -255,6 +255,30 @@ def test_the_corners_of_a_toleranced_position_are_solved_ahead(monkeypatch):
     assert_same_ranking(fast, slow)
 
 
+def test_a_candidate_the_engine_refuses_at_a_toleranced_position_says_why_as_alone():
+    # a generated part whose CIPO edge table has a negative load (invented bad data,
+    # built past the loader): the engine refuses it on the board as designed, and the
+    # batched ranking reports the error the one-at-a-time path reports, file and all
+    from dataclasses import replace
+
+    from tests.spiparts import add_generated
+
+    lib = load_library(env=False)
+    ids = add_generated(lib, 6)
+    part = lib.parts[ids[0]]
+    pin = part.pins["cipo"]
+    bad = pin.edges[0].copy(**{"load": replace(pin.edges[0].load, value=-15e-12)})
+    lib.parts[ids[0]] = part.copy(**{"pins": {**part.pins, "cipo": pin.copy(
+        **{"edges": [bad, *pin.edges[1:]]})}})
+    d = load_design(DEMO, library=lib)
+    fast, slow = cand.rank_candidates(d, "U7"), cand.rank_candidates_slow(d, "U7")
+    got = [(c.status, c.error) for r in (fast, slow) for c in r.candidates
+           if c.part == ids[0]]
+    assert got[0] == got[1] and got[0][0] == "error"
+    assert "pins.cipo.loads" in got[0][1] and "U7" in got[0][1]
+    assert_same_ranking(fast, slow)
+
+
 def test_one_at_a_time_solves_each_edge_once_per_candidate(monkeypatch):
     # each candidate is evaluated in one run, as `pinlib check` evaluates a design: an
     # edge its bus analyses twice (the corners of its tolerances, the budget) is solved

@@ -108,31 +108,33 @@ def _with_corners(design: Design, ref: str, parts: list[Part], buses: list[Bus],
     nominal: dict = {}
     ahead = []
     for p in parts:
+        # the boards as designed, bus by bus, up to the first that the engine refuses
+        sw, got, failed = None, [], None
         try:
             sw = swapped.get(p.id) or design.with_parts({ref: p.id}, keep_others=True)
-            got = []
             for b in buses:
                 bus = sw.bus(b.id)
                 with memo.transient(), located_errors(bus, sw):
                     got.append(evaluate_board(bus, sw))
-                ahead += corner_line_inputs(bus, sw, got[-1])
-            nominal[p.id] = (sw, got)
+                try:
+                    ahead += corner_line_inputs(bus, sw, got[-1])
+                except PinlibError:
+                    pass  # the corner search meets it again and says where
         except PinlibError as err:
-            nominal[p.id] = err
+            failed = err
+        nominal[p.id] = (sw, got, failed)
     done = []
     with memo.transient():  # the corners' edges go when these candidates are done
         prefetch(ahead)
         for p in parts:
-            got = nominal[p.id]
-            if isinstance(got, PinlibError):
-                done.append((p, got))
-                tick()
-                continue
-            sw, boards = got
+            sw, boards, failed = nominal[p.id]
             try:
                 with memo.transient():  # its own solves go with it
-                    done.append((p, [evaluate_bus(sw.bus(b.id), sw, nominal=n)
-                                     for b, n in zip(buses, boards, strict=True)]))
+                    # each bus's corners before the next bus's board, as evaluate_bus
+                    # takes them one bus at a time: the first error met is the same
+                    results = [evaluate_bus(sw.bus(b.id), sw, nominal=n)
+                               for b, n in zip(buses[:len(boards)], boards, strict=True)]
+                done.append((p, failed if failed is not None else results))
             except PinlibError as err:
                 done.append((p, err))
             tick()
