@@ -709,7 +709,7 @@ def rank_candidates(design: Design, ref: str, *, categories=None, progress=None)
     slow_buses = [bus.id for bus, _ in places if bus not in fast_buses + pp_buses]
     table = _Summaries(design, ref, parts, places, slow_buses, pp_buses)
     table.notes += _one_at_a_time_notes(places, fast_buses + pp_buses)
-    table.notes += [batched_note(bus) for bus in pp_buses]
+    table.notes += [batched_note(bus, pp_buses) for bus in pp_buses]
     collected = {bus.id: od.collect(bus, design) for bus in fast_buses}
     # a unit is one part tried at one position (a part that stands at two places counts
     # twice); the library and design left out of the cyclic collector's walks meanwhile

@@ -31,13 +31,15 @@ from collections.abc import Callable, Iterator
 from pinlib.core.errors import PinlibError
 from pinlib.engines import memo
 from pinlib.engines.dispatch import evaluate_bus, located_errors
+from pinlib.engines.ppvariant import parameter_specs
 from pinlib.engines.pushline.batchsolve import prefetch
 from pinlib.engines.pushpull import corner_line_inputs, evaluate_board, line_inputs
 from pinlib.engines.readout import summaries_only
 from pinlib.library.schema import Part
 from pinlib.model.design import Bus, Design
 
-__all__ = ["CHUNK", "evaluate_batched", "batched_note"]
+__all__ = ["CHUNK", "TOLERANCED_CHUNK", "CORNER_CHUNK", "chunk_size", "evaluate_batched",
+           "batched_note"]
 
 #: Candidates whose edges are solved together (and held in memory until their
 #: evaluations end; ranking 1,000 SPI parts at the demo's display position peaks near
@@ -47,6 +49,14 @@ __all__ = ["CHUNK", "evaluate_batched", "batched_note"]
 #: 1,000 candidates at the display position at 256 a chunk, 66 at 512, for about 5 %
 #: of the ranking's time).
 CHUNK = 512
+
+#: The chunk where a bus of the position has tolerances: each candidate's boards as
+#: designed keep their edges through its corner search, so a chunk holds its records
+#: longer.  Ranking 1,000 generated SPI parts at the demo's flash position: 533 MB of
+#: process and 20.7 ms a candidate at 512, 330 MB and 19.3 ms at 256, 254 MB and
+#: 17.1-18.1 ms at 128, 222 MB and 17.9 ms at 64 (2026-12-05, CPU; at the display
+#: position, without tolerances, 128 is 11 % slower than 512).
+TOLERANCED_CHUNK = 128
 
 #: Candidates whose corners' edges are solved together (a bus with tolerances: each
 #: candidate's first corners, :func:`pinlib.engines.pushpull.corner_line_inputs`, about
@@ -81,8 +91,9 @@ def evaluate_batched(design: Design, ref: str, parts: list[Part], buses: list[Bu
         engine's, some explanations shorter), or the error the design or an engine
         raised with the part in the position.
     """
-    for start in range(0, len(parts), CHUNK):
-        chunk = parts[start:start + CHUNK]
+    size = chunk_size(buses)
+    for start in range(0, len(parts), size):
+        chunk = parts[start:start + size]
         with memo.run_scope(), summaries_only():
             swapped, inputs = {}, []
             for p in chunk:
@@ -141,7 +152,14 @@ def _with_corners(design: Design, ref: str, parts: list[Part], buses: list[Bus],
     return done
 
 
-def batched_note(bus: Bus) -> str:
-    """What the ranking says of a push-pull bus whose candidates go this way."""
+def chunk_size(buses: list[Bus]) -> int:
+    """Candidates a chunk takes at a position on ``buses``: :data:`TOLERANCED_CHUNK` where
+    one of them has tolerances, else :data:`CHUNK`."""
+    return TOLERANCED_CHUNK if any(parameter_specs(b) for b in buses) else CHUNK
+
+
+def batched_note(bus: Bus, buses: list[Bus]) -> str:
+    """What the ranking says of a push-pull bus whose candidates go this way (``buses``:
+    the position's push-pull buses, which set the chunk)."""
     return (f"bus {bus.id}: each candidate evaluated by the {bus.protocol} engine, the "
-            f"edges of up to {CHUNK} candidates solved together")
+            f"edges of up to {chunk_size(buses)} candidates solved together")
