@@ -4,7 +4,8 @@ Each candidate is evaluated by the engine (:func:`pinlib.engines.dispatch.evalua
 on the design with the part in the position), as :func:`pinlib.studies.candidates.
 rank_candidates_slow` does, so every check and figure is the engine's.  What is batched
 is the waveform solves, most of a push-pull evaluation's time: the candidates are taken
-:data:`CHUNK` at a time, the inputs of every line analysis each will make are gathered
+:data:`CHUNK` at a time (:data:`TOLERANCED_CHUNK` where a bus has tolerances,
+:func:`chunk_size`), the inputs of every line analysis each will make are gathered
 (:func:`pinlib.engines.pushpull.line_inputs`) and their edges solved together
 (:func:`pinlib.engines.pushline.batchsolve.prefetch`, one solver call per chain of
 sections and group of like time steps, each edge on its own grid) into a memo that
