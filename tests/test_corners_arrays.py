@@ -20,7 +20,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from pinlib.engines import ppbatch, ppcorners
+from pinlib.engines import ppbatch, ppcorners, ppvariant
 from pinlib.engines.memo import run_scope
 from pinlib.engines.ppvariant import parameter_specs
 from pinlib.engines.pushpull import evaluate_board
@@ -121,13 +121,13 @@ def test_rows_at_the_nominal_board_and_a_floor(monkeypatch):
     i = next(n for n, s in enumerate(specs) if s[1] == "length")
     seen = []
     rows = ppcorners.corner_rows(big, d, evaluate_board(big, d), floor=0.25)
-    vary = ppcorners.vary_bus
+    vary = ppvariant.vary_bus  # the corner rows vary each line's bus there
 
     def spy(b, factor, *a):
         seen.append(factor(specs[i][-1]))
         return vary(b, factor, *a)
 
-    monkeypatch.setattr(ppcorners, "vary_bus", spy)
+    monkeypatch.setattr(ppvariant, "vary_bus", spy)
     u = np.zeros((1, len(specs)))
     u[0, i] = -1.0
     rows(u)

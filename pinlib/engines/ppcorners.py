@@ -40,9 +40,8 @@ from pinlib.engines.ppsupply import supply_checks
 from pinlib.engines.ppvariant import (
     check_names,
     chosen_resistors,
-    line_of_key,
+    line_variants,
     parameter_specs,
-    vary_bus,
 )
 from pinlib.engines.ppworst import BoardRows, rank_margin
 from pinlib.engines.pushline import Flight
@@ -128,18 +127,9 @@ class _Corners:
     def _variants(self, u: np.ndarray, sig: str | None):
         """The distinct factors of the boards on one line (``sig``; None: the factors
         every line shares) and each board's index among them."""
-        cols = [i for i, s in enumerate(self.specs) if line_of_key(s[-1]) in (None, sig)]
-        uniq, inverse = np.unique(u[:, cols], axis=0, return_inverse=True)
-        buses = []
-        for row in uniq:
-            f = {self.specs[i][-1]: self._factor(self.specs[i][3], x)
-                 for i, x in zip(cols, row, strict=True)}
-            buses.append(vary_bus(self.bus, f.get, self.chosen))
-        return buses, np.asarray(inverse).reshape(-1)
-
-    def _factor(self, tolerance: float, x: float) -> float:
-        f = 1.0 + tolerance * x
-        return f if self.floor is None else max(f, self.floor)
+        _, buses, inverse = line_variants(self.bus, self.specs, u, sig, self.chosen,
+                                          self.floor)
+        return buses, inverse
 
     def rows(self, u: np.ndarray) -> BoardRows | None:
         """The checks of the boards ``u`` (see :func:`corner_rows`)."""

@@ -11,6 +11,8 @@ from __future__ import annotations
 import math
 from dataclasses import replace
 
+import numpy as np
+
 from pinlib.model.design import Bus
 
 __all__ = [
@@ -18,6 +20,7 @@ __all__ = [
     "parameter_specs",
     "rail_key",
     "line_of_key",
+    "line_variants",
     "vary_bus",
     "chosen_resistors",
     "check_names",
@@ -90,6 +93,49 @@ def line_of_key(key: tuple) -> str | None:
     extra capacitance, a line's pull-up), or None for one every line shares (a rail,
     a device's pins)."""
     return key[2] if key[0] in ("line-length", "line-extra", "line-pullup") else None
+
+
+def line_variants(bus: Bus, specs: list[tuple], u, sig: str | None,
+                  resistors: dict[str, float] | None = None,
+                  floor: float | None = None) -> tuple:
+    """The distinct boards of one line among the boards ``u``: those that differ in the
+    factors the line depends on (its own and those every line shares).
+
+    Parameters
+    ----------
+    bus : Bus
+        An ``spi`` or ``gpio`` bus. [1]
+    specs : list of tuple
+        :func:`parameter_specs` of the bus. [1]
+    u : numpy.ndarray
+        Boards, shape ``(n, k)``: each parameter's end, -1, 0 or +1. [1]
+    sig : str or None
+        The line; None for the factors every line shares alone. [1]
+    resistors : dict, optional
+        A fixed series resistor for lines set to "auto" (:func:`chosen_resistors`). [Ω]
+    floor : float, optional
+        The smallest factor ``1 + tolerance·u`` a parameter takes; without it, none. [1]
+
+    Returns
+    -------
+    (numpy.ndarray, list of Bus, numpy.ndarray)
+        The distinct rows of the line's factors (each parameter's end), the bus varied
+        at each (:func:`vary_bus`), and the index of each board's row. [1]
+    """
+    cols = [i for i, s in enumerate(specs) if line_of_key(s[-1]) in (None, sig)]
+    uniq, inverse = np.unique(u[:, cols], axis=0, return_inverse=True)
+    buses = []
+    for row in uniq:
+        f = {specs[i][-1]: _factor(specs[i][3], x, floor)
+             for i, x in zip(cols, row, strict=True)}
+        buses.append(vary_bus(bus, f.get, resistors))
+    return uniq, buses, np.asarray(inverse).reshape(-1)
+
+
+def _factor(tolerance: float, x: float, floor: float | None) -> float:
+    """A parameter's factor at its end ``x``: ``1 + tolerance·x``, at least ``floor``."""
+    f = 1.0 + tolerance * x
+    return f if floor is None else max(f, floor)
 
 
 def chosen_resistors(nominal) -> dict[str, float]:

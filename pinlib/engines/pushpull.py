@@ -25,8 +25,6 @@ from __future__ import annotations
 
 from dataclasses import replace
 
-import numpy as np
-
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError
 from pinlib.core.tomlfile import dotted
@@ -164,12 +162,7 @@ def corner_line_inputs(bus: Bus, design: Design, nominal: BusResult) -> list:
         at_worst_corners` builds it (so each edge's key is the one the search asks for);
         empty where nothing is toleranced.
     """
-    from pinlib.engines.ppvariant import (
-        chosen_resistors,
-        line_of_key,
-        parameter_specs,
-        vary_bus,
-    )
+    from pinlib.engines.ppvariant import chosen_resistors, line_variants, parameter_specs
     from pinlib.engines.ppworst import first_boards
 
     specs = parameter_specs(bus)
@@ -179,13 +172,10 @@ def corner_line_inputs(bus: Bus, design: Design, nominal: BusResult) -> list:
     chosen = chosen_resistors(nominal)
     out = []
     for sig in bus.lines:
-        cols = [i for i, s in enumerate(specs) if line_of_key(s[-1]) in (None, sig)]
-        for row in np.unique(u[:, cols], axis=0):
-            if not row.any():
-                continue  # the nominal board's line: analysed already
-            f = {specs[i][-1]: 1.0 + specs[i][3] * x for i, x in zip(cols, row, strict=True)}
-            varied = vary_bus(bus, f.get, chosen)
-            out += line_inputs(varied, design, only=sig)
+        rows, varied, _ = line_variants(bus, specs, u, sig, chosen)
+        # (a row all nominal is the board as designed's line: analysed already)
+        out += [li for row, b in zip(rows, varied, strict=True) if row.any()
+                for li in line_inputs(b, design, only=sig)]
     return out
 
 
