@@ -337,6 +337,24 @@ def test_fall_time_bound_and_tf_min(tmp_path):
     assert any("responsibility" in n and "U1" in n for n in res.notes)
 
 
+def test_rise_time_minimum_in_fast_mode_only(tmp_path):
+    """A strong pull-up on a small bus rises under Fast-mode's 20 ns: it fails, worked at
+    the pull-up's low end; Standard-mode and Fast-mode Plus have no minimum."""
+    res = bus_result(tmp_path, one_bus(pullup="1 kΩ", ptol="5 %"))
+    chk = next(c for c in res.checks if c.id == "rise-time-min" and c.subject == "SDA")
+    assert chk.limit == pytest.approx(20e-9)  # published: UM10204 rev. 6 table 10, Fm tr min
+    cb = fig(res, "bus_capacitance")
+    # derived from UM10204 rev. 6 §7.1: tr = 0.8473·Rp·Cb, Rp at −5 %
+    assert chk.value == pytest.approx(RISE_30_70 * 950.0 * cb, rel=1e-12)
+    assert chk.value < 20e-9 and chk.status == "fail"
+    assert "stated maxima" in chk.message and chk.source
+    slow = bus_result(tmp_path, one_bus(pullup="1 kΩ", ptol="5 %", extra="200 pF"))
+    assert {c.status for c in slow.checks if c.id == "rise-time-min"} == {"pass"}
+    for mode in ("standard", "fast-plus"):
+        other = bus_result(tmp_path, one_bus(mode=mode, pullup="1 kΩ"))
+        assert not [c for c in other.checks if c.id == "rise-time-min"], mode
+
+
 def test_setup_budget(tmp_path):
     devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
                '{ ref = "U2", part = "t-target" }']
@@ -1082,7 +1100,8 @@ def test_batch_at_one_variant_and_at_many_gives_the_same_numbers(path, folders):
 #: (margin (value − limit)/|limit|); pullup-window is either, as its message says.
 _AT_MOST = ("bus-capacitance", "bus-leakage", "rise-time", "v-ol", "sink-current", "fall-time",
             "input-voltage", "scl-frequency", "device-speed", "bridge-offset")
-_AT_LEAST = ("noise-margin-low", "noise-margin-high", "v-oh", "fall-time-min", "setup-time")
+_AT_LEAST = ("noise-margin-low", "noise-margin-high", "v-oh", "fall-time-min", "setup-time",
+             "rise-time-min")
 
 
 def _line_numbers(chk, seg_in):
@@ -1104,6 +1123,9 @@ def _line_numbers(chk, seg_in):
     if chk.id == "rise-time":
         # derived from UM10204 rev. 6 §7.1 eq. 1: tr = factor · Rp · Cb, Rp at +tol
         return [ln.rise_factor * r_eff * (1 + tol) * ln.cb]
+    if chk.id == "rise-time-min":
+        # derived from the same formula at the fast end: Rp at −tol
+        return [ln.rise_factor * r_eff * (1 - tol) * ln.cb]
     if chk.id == "v-oh":
         # derived: the rail (either corner) less the leakage's drop across Rp at +tol
         return [float(v) - ln.leakage * r_eff * (1 + tol) for v in seg_in.vdd]
@@ -1146,7 +1168,9 @@ def test_one_bus_numbers_hold_to_their_formulas(path, folders):
                 assert (c.status == "fail") == (m < 0), key
     # common practice, no source: the designs exercise each formula above
     # bus-leakage on the designs with an SMBus bus only (I2C has no such check)
-    assert seen - {"bus-leakage"} == {"bus-capacitance", "pullup-window", "rise-time", "v-oh"}
+    # rise-time-min on the designs with a Fast-mode bus only (the one mode with a tr minimum)
+    assert seen - {"bus-leakage", "rise-time-min"} == {"bus-capacitance", "pullup-window",
+                                                        "rise-time", "v-oh"}
 
 
 #: Checks whose subject names the element (receiver, driver, device) they compare; a

@@ -139,6 +139,15 @@ class OpenDrainLimits:
         t = self._i2c.tf_min_at(vdd)
         return float(t) if np.ndim(t) == 0 else np.asarray(t, dtype=float)
 
+    def tr_min(self, vdd):
+        """Minimum rise time at a supply, a float for a float and an array for an array
+        (None where the document gives none: I2C Standard-mode and Fast-mode Plus,
+        SMBus). [s]"""
+        if self._i2c is None or self._i2c.tr_min is None:
+            return None
+        t = self._i2c.tr_min_at(vdd)
+        return float(t) if np.ndim(t) == 0 else np.asarray(t, dtype=float)
+
     def output_fall(self) -> i2c_std.OutputFall | None:
         """The output fall time a compliant I2C output stage of this mode guarantees
         (tof, UM10204 table 9) with its Cb range; None for SMBus, which states none."""

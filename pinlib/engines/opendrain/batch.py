@@ -143,6 +143,10 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     f["rise_time"] = tr
     f["rise_time_10_90"] = phys.rise_time(rp_hi, ln.cb, RISE_10_90)
     out.pick("rise-time", up, [le(tr, lim.tr_max)], warn, "s")
+    tr_min = lim.tr_min(np.asarray(v, dtype=float))
+    if tr_min is not None:  # the fastest rise: the pull-up at its low end
+        out.pick("rise-time-min", up, [ge(phys.rise_time(rp_lo, ln.cb, ln.rise_factor),
+                                          tr_min)], warn, "s")
     # -- low levels
     raw, offset_levels = low_levels(v, rp_lo, ln.drivers, far, ctx.segs, ln.signal, phys)
     levels = [(vb, i, d if link is None else None) for vb, i, d, link in raw]

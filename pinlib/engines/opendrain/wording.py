@@ -142,6 +142,7 @@ def line(w: Words, ln: LineInputs) -> None:
                  f"+{_f(tol, '%')}, Cb {_f(ln.cb, 'F')}, factor {ln.rise_factor:.4g})", subject=up,
                  details={"definition": lim.rise_definition, "factor": ln.rise_factor}))
     _leaky_rise_note(w, ln, rp_hi, defin)
+    _fastest_rise(w, ln, rp_lo, defin)
     far = w.far_links()
     behind = any(True for _ in far_drivers(far, w.ctx.collected, ln.signal))
     local = [d for d in ln.drivers if d.offset is None]
@@ -158,6 +159,28 @@ def line(w: Words, ln: LineInputs) -> None:
     if ln.receivers:
         _v_oh(w, ln, rp_hi)
     _fall(w, ln, far)
+
+
+def _fastest_rise(w: Words, ln: LineInputs, rp_lo: float, defin: str) -> None:
+    """The rise-time minimum where the mode has one (I2C Fast-mode): the rise through
+    the pull-up at its low end with the bus capacitance as stated.  The pins' values are
+    their maxima, so a line with less capacitance rises faster still: a rise under the
+    minimum here is under it on the board too (it fails), and one above it holds only
+    as far as the capacitance is really there, which the check says."""
+    bc = w.peek("rise-time-min")
+    if bc is None or bc.signal != ln.signal.upper():
+        return
+    w.take("rise-time-min")
+    up, tol = ln.signal.upper(), w.seg_in.tol
+    chk = make(bc, w.lim.source_edges,
+               f"{up} fastest rise {_f(bc.value[0], 's')} ({defin}, Rp {_f(rp_lo, 'Ω')} at "
+               f"−{_f(tol, '%')}, Cb {_f(ln.cb, 'F')}) against tr(min) "
+               f"{_f(bc.limit[0], 's')}; the pins' capacitances are their stated maxima, "
+               "so a bus with less rises faster", subject=up,
+               details={"definition": w.lim.rise_definition, "factor": ln.rise_factor})
+    if chk.status == "fail":
+        _failed(chk, "a larger pull-up, inside its window")
+    w.grp.add(chk)
 
 
 #: A rise the pins' leakage lengthens by at least this much against the specification's
