@@ -355,6 +355,19 @@ def test_rise_time_minimum_in_fast_mode_only(tmp_path):
         assert not [c for c in other.checks if c.id == "rise-time-min"], mode
 
 
+def test_auto_keeps_the_rise_over_its_minimum(tmp_path):
+    """On a small 1.8 V Fast-mode bus the sink allows 1 kΩ, whose rise (16 ns) is under
+    the 20 ns minimum: ``auto`` takes the smallest value that keeps it, as it keeps the
+    leakage's bound at the top."""
+    res = bus_result(tmp_path, one_bus(supply="1.8 V", pullup="auto", ptol="5 %"))
+    chk = next(c for c in res.checks if c.id == "rise-time-min")
+    assert chk.status == "pass"  # published limit: UM10204 rev. 6 table 10, Fm tr min 20 ns
+    rp = fig(res, "pullup")
+    # derived from UM10204 rev. 6 §7.1: 0.8473·Rp·(1 − 5 %)·Cb at least 20 ns
+    assert RISE_30_70 * rp * 0.95 * fig(res, "bus_capacitance") >= 20e-9
+    assert eseries.find_nearest(eseries.E24, rp) == pytest.approx(rp)  # an E24 value (IEC 60063)
+
+
 def test_setup_budget(tmp_path):
     devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
                '{ ref = "U2", part = "t-target" }']

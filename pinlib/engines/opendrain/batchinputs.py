@@ -28,6 +28,7 @@ from pinlib.engines.opendrain.rules import (
     coupled_sinks,
     part_is_mosfet,
     pin_rules,
+    rp_fast_of,
     rp_leak_of,
     rp_max_of,
     rp_min_of,
@@ -377,6 +378,7 @@ class _Line:
     rp_max: Any
     rise_factor: Any
     rp_leak: Any = math.inf  # the leakage's bound at the high level (rules.rp_leak_of)
+    rp_fast: Any = 0.0     # the tr minimum's bound (rules.rp_fast_of)
     pullup: Any = None     # the design resistor on this line
     r_eff: tuple | None = None  # (pullup, every pull-up in parallel) once worked out
 
@@ -513,7 +515,7 @@ def _line(bus, seg, signal, function, v, parts, scen, lim, board) -> _Line:
     rp_max = rp_max_of(lim, rise_factor, cb)
     rp_leak = rp_leak_of(v, lim.v_nh_rel or 0.0, leak, [r.v_ih for r in receivers])
     return _Line(signal, taps, cb, leak, drivers, receivers, r_parts, rp_min, rp_max,
-                 rise_factor, rp_leak)
+                 rise_factor, rp_leak, rp_fast_of(lim, v, rise_factor, cb))
 
 
 def _choose(s: _Seg) -> None:

@@ -31,6 +31,7 @@ from pinlib.engines.opendrain.rules import (
     links,
     part_is_mosfet,
     pin_rules,
+    rp_fast_of,
     rp_leak_of,
     rp_max_of,
     rp_min_of,
@@ -174,6 +175,9 @@ class LineInputs:
     #: noise margin), :func:`.rules.rp_leak_of`; ``inf`` for none.  The ``auto`` choice
     #: keeps below it; it is not part of the window (Rp(max) is eq. 1's). [Ω]
     rp_leak: float = math.inf
+    #: The smallest effective pull-up whose rise meets the mode's tr minimum,
+    #: :func:`.rules.rp_fast_of`; 0 for none.  It steers ``auto`` as ``rp_leak`` does. [Ω]
+    rp_fast: float = 0.0
 
 
 @value_class
@@ -435,7 +439,8 @@ def _line_inputs(signal: str, seg_in: SegmentInputs, lim: OpenDrainLimits,
     rp_leak = rp_leak_of(v, lim.v_nh_rel or 0.0, leak, [r.v_ih for r in receivers])
     return LineInputs(signal, taps, cb, cb_parts, leak, drivers, receivers, part_pullups,
                       r_parts, rp_min, weakest, rp_max, rise_factor,
-                      weakest.tap.label if weakest else "", rp_leak=rp_leak)
+                      weakest.tap.label if weakest else "", rp_leak=rp_leak,
+                      rp_fast=rp_fast_of(lim, v, rise_factor, cb))
 
 
 def _choose(seg_in: SegmentInputs) -> None:

@@ -86,6 +86,22 @@ def rp_max_of(lim: OpenDrainLimits, rise_factor, cb):
     return np.where(ok, rc.rp_max(lim.tr_max, np.where(ok, cb_arr, 1.0), rise_factor), math.inf)
 
 
+def rp_fast_of(lim: OpenDrainLimits, v, rise_factor, cb):
+    """The smallest effective pull-up (at its − tolerance) whose rise through ``cb``
+    meets the mode's tr minimum, ``tr(min) / (factor·Cb)`` (I2C Fast-mode's 20 ns,
+    UM10204 rev. 6 table 10, at the rail's maximum where it scales); 0 where the mode
+    has none.  Like :func:`rp_leak_of` it steers the ``auto`` choice only, and is not
+    part of the window. ``v`` at the rail corners; scalars or batch columns. [Ω]"""
+    tr_min = lim.tr_min(np.max(np.asarray(v, dtype=float), axis=-1, keepdims=np.ndim(v) > 1))
+    if tr_min is None:
+        return 0.0
+    if np.ndim(tr_min) == 0 and np.ndim(cb) == 0 and np.ndim(rise_factor) == 0:
+        return float(tr_min / (rise_factor * cb)) if cb > 0 else 0.0
+    cb_arr = np.asarray(cb, dtype=float)
+    ok = cb_arr > 0
+    return np.where(ok, tr_min / (rise_factor * np.where(ok, cb_arr, 1.0)), 0.0)
+
+
 def rp_leak_of(v, v_nh_rel, leakage, v_ihs):
     """The largest effective pull-up (at its + tolerance) whose leakage drop keeps the
     high level at or above every receiver's VIH plus the high-level noise margin:
@@ -115,7 +131,9 @@ def auto_margins(series: str, lines, tol: float):
     batch).  The upper bound is the smaller of Rp(max) and ``rp_leak`` (the leakage's, see
     :func:`rp_leak_of`) where a value meets that bound and Rp(min) together: a value the
     high-level checks would fail is not chosen where one that meets both exists, and the
-    sink's window is never given up for it.
+    sink's window is never given up for it.  Likewise the lower bound is the larger of
+    Rp(min) and ``rp_fast`` (the tr minimum's, :func:`rp_fast_of`) where a value meets
+    it and the upper bound together.
 
     Returns
     -------
@@ -131,7 +149,9 @@ def auto_margins(series: str, lines, tol: float):
         # choice stays in the sink's window (the noise margin then says none fits)
         top = np.where(window_open(ln.rp_min, ln.rp_leak, tol),
                        np.minimum(ln.rp_max, ln.rp_leak), ln.rp_max)
-        lo, hi = pu.pullup_margins(cand, ln.rp_min, top, tol, ln.r_parts)
+        fast = np.maximum(ln.rp_min, ln.rp_fast)
+        bottom = np.where(window_open(fast, top, tol), fast, ln.rp_min)
+        lo, hi = pu.pullup_margins(cand, bottom, top, tol, ln.r_parts)
         worst = np.minimum(worst, np.minimum(lo, hi))
     return cand, worst
 
