@@ -406,6 +406,9 @@ def test_pullup_window_agrees_with_the_result(demo, bus_id):
             assert d.rp_max_chosen == pytest.approx(window.details["rp_max"], rel=1e-12)
             assert d.chosen_cb in d.cb
             assert np.all(np.diff(d.cb) > 0)
+            # the demo's sensor segments are joined by the translator Q1: their Rp(min)
+            # is the shared sink's, which the caption must say (invented demo design)
+            assert d.shared == (bus_id == "sensors")
             if bus.protocol == "i2c":
                 # published: UM10204 rev. 6 §7.1 eq. 1 with Fast-mode tr(max) 300 ns
                 # (table 10); the factor is printed to 4 digits
@@ -415,6 +418,9 @@ def test_pullup_window_agrees_with_the_result(demo, bus_id):
         assert grp.figures["rp_max"].value == pytest.approx(
             min(plotdata.pullup_window_data(bus, design, seg.id, s).rp_max_chosen
                 for s in ("sda", "scl")), rel=1e-12)
+    caption = next(c.caption for c in review.build_review(design, result).all_charts()
+                   if c.kind == "pullup-window" and f": {bus_id} " in c.title)
+    assert ("I(far)" in caption) == (bus_id == "sensors")
 
 
 def _lines(design, result):

@@ -48,6 +48,10 @@ class PullupWindowData:
         The device whose sink sets Rp(min) (empty when no device drives the line). [1]
     source : str
         Where the limits come from. [1]
+    shared : bool
+        Whether the segment is joined to another through a pass-transistor translator:
+        Rp(min) is then the weakest sink's rating less the current it also sinks from
+        the far side's pull-ups. [1]
     """
 
     bus: str
@@ -63,6 +67,7 @@ class PullupWindowData:
     rise_factor: float
     weakest: str
     source: str
+    shared: bool = False
 
 
 # =========================================================================== open drain
@@ -129,4 +134,4 @@ def pullup_window_data(bus: Bus, design: Design, segment_id: str | None = None,
               f"{lim.source_edges}")
     return PullupWindowData(bus.id, seg_in.segment.id, signal, cb, float(ln.rp_min), rp_max,
                             cb0, float(seg_in.r_eff(signal)), rp_max0, float(lim.tr_max),
-                            float(ln.rise_factor), ln.rp_min_label, source)
+                            float(ln.rise_factor), ln.rp_min_label, source, bool(ln.coupled))

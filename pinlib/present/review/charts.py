@@ -29,8 +29,11 @@ def _pullup_charts(bus, design, result: BusResult, keys, charts):
                 continue
             sub = (f"tr ≤ {_f(d.tr_max, 's')}, rise = {d.rise_factor:.4g}·Rp·Cb; Rp(min) "
                    f"{_f(d.rp_min, 'Ω')}" + (f" set by {d.weakest}" if d.weakest else ""))
-            caption = (f"Allowed pull-ups (shaded) between Rp(min) = (VDD(max) − VOL)/IOL of "
-                       f"the weakest sink and Rp(max) = tr/({d.rise_factor:.4g}·Cb). The "
+            sink, far = (("(IOL − I(far))", "; I(far) is the far side's pull-up current, "
+                          "which the sink also carries through the translator") if d.shared
+                         else ("IOL", ""))
+            caption = (f"Allowed pull-ups (shaded) between Rp(min) = (VDD(max) − VOL)/{sink} "
+                       f"of the weakest sink and Rp(max) = tr/({d.rise_factor:.4g}·Cb){far}. The "
                        f"diamond is the design: {_f(d.chosen_rp, 'Ω')} on "
                        f"{_f(d.chosen_cb, 'F')} (Rp(max) there {_f(d.rp_max_chosen, 'Ω')}). "
                        f"Source: {d.source}.")
