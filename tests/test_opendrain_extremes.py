@@ -12,6 +12,7 @@ from test_opendrain import bus_result, fig, one_bus
 
 from pinlib.engines.limits import limits_for
 from pinlib.model.result import BusResult, DesignResult
+from pinlib.physics.rc import RISE_30_70
 from pinlib.present.detail import detail_lines
 from pinlib.present.report import problem_line
 
@@ -253,6 +254,36 @@ def test_a_leakage_noise_margin_failure_names_the_largest_pullup(tmp_path):
     assert chk.status == "fail"
     assert chk.fix and "at most 1.1 kΩ" in chk.fix and chk.fix in chk.message
     assert "leakage" in chk.fix
+
+
+def test_a_rise_the_leakage_never_completes_has_no_figure(tmp_path):
+    # derived from UM10204 rev. 6 §7.4: the line rises toward VDD − ΣI·Rp.  With 1.6 kΩ
+    # and 301 µA (test data, invented) it stops at 2.82 V: past 0.7·VDD (2.31 V), so tr
+    # stands, short of 0.9·VDD (2.97 V), so the 10–90 % rise has no number
+    res = _leaky_bus(tmp_path, "1.6 kΩ")
+    assert fig(res, "rise_time") is not None and fig(res, "scl_frequency_effective")
+    f = res.figures["rise_time_10_90"]
+    assert f.value is None and "never rises to 2.97 V" in f.reason and "2.82 V" in f.reason
+    # with 10 kΩ it stops at 0.29 V: no rise, clock or setup figure worked from tr
+    res = _leaky_bus(tmp_path / "b", "10 kΩ")
+    for name in ("rise_time", "rise_time_10_90", "rise_time_sda", "rise_time_scl",
+                 "scl_frequency_effective", "sda_setup_margin"):
+        f = res.figures[name]
+        assert f.value is None and "leakage" in f.reason, name
+    assert "SCL never rises to 2.31 V" in res.figures["scl_frequency_effective"].reason
+    # the rise-time check fails without a value, saying why, as a line that never falls
+    # fails its fall time
+    chk = next(c for c in res.checks if c.id == "rise-time" and c.subject == "SDA")
+    assert chk.value is None and chk.margin is None and chk.status == "fail"
+    assert "never rises to 2.31 V" in chk.reason and chk.fix
+    lines = detail_lines(DesignResult("leak", buses=[res]), 80)
+    assert any("never rises to 2.31 V, held at 290 mV" in ln for ln in lines)
+    # with 1.6 kΩ the rise completes: the check keeps the specification's formula
+    res = _leaky_bus(tmp_path / "c", "1.6 kΩ")
+    chk = next(c for c in res.checks if c.id == "rise-time")
+    # derived from UM10204 rev. 6 §7.1 eq. 1 (tolerances 0)
+    assert chk.value == pytest.approx(RISE_30_70 * 1600.0 * fig(res, "bus_capacitance"),
+                                      rel=1e-12)
 
 
 def test_smbus_bus_leakage_is_checked_against_ileak_bus(tmp_path):

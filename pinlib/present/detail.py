@@ -15,6 +15,7 @@ import textwrap
 from pinlib.core import messages as M
 from pinlib.core.labels import check_label, humanize, note_label
 from pinlib.core.quantity import format_si
+from pinlib.core.wrapping import NBSP, glue
 from pinlib.model.result import CAUTION, BusResult, Group, margin_text
 from pinlib.present.terminal import status_word, wrap
 from pinlib.present.values import counts, figure_cells, format_value, with_fix
@@ -38,7 +39,9 @@ def table(rows: list[list[str]], indent: str, cols: int, flex: int,
     for i, r in enumerate(rows):
         if heads and i in heads:
             out.append(heads[i])
-        pieces = textwrap.wrap(r[flex], widths[flex], break_on_hyphens=False) or [""]
+        # a number stays on the line of its unit, as in every text pinlib wraps
+        pieces = [p.replace(NBSP, " ") for p in textwrap.wrap(
+            glue(r[flex]), widths[flex], break_on_hyphens=False)] or [""]
         for k, piece in enumerate(pieces):
             cells = [(piece if i == flex else (r[i] if k == 0 else ""))
                      for i in range(n)]

@@ -12,6 +12,8 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 from pinlib.engines.opendrain.arith import BY_PART, far_drivers
 from pinlib.engines.opendrain.batchfigures import one
 from pinlib.engines.opendrain.bridges import overdrive
@@ -137,11 +139,15 @@ def line(w: Words, ln: LineInputs) -> None:
     grp.add(_window(w, ln, r_eff, rp_lo))
     defin = ("30–70 %" if lim.rise_definition == "30-70" else "SMBus points 0.65 V–1.50 V")
     bc = w.take("rise-time")
-    grp.add(make(bc, lim.source_edges,
-                 f"{up} rise time {_f(bc.value[0], 's')} ({defin}, Rp {_f(rp_hi, 'Ω')} at "
-                 f"+{_f(tol, '%')}, Cb {_f(ln.cb, 'F')}, factor {ln.rise_factor:.4g})", subject=up,
-                 details={"definition": lim.rise_definition, "factor": ln.rise_factor}))
-    _leaky_rise_note(w, ln, rp_hi, defin)
+    basis = (f"{defin}, Rp {_f(rp_hi, 'Ω')} at +{_f(tol, '%')}, Cb {_f(ln.cb, 'F')}, factor "
+             f"{ln.rise_factor:.4g}")
+    details = {"definition": lim.rise_definition, "factor": ln.rise_factor}
+    if math.isfinite(bc.value[0]):
+        grp.add(make(bc, lim.source_edges, f"{up} rise time {_f(bc.value[0], 's')} ({basis})",
+                     subject=up, details=details))
+        _leaky_rise_note(w, ln, rp_hi, defin)
+    else:
+        grp.add(_never_rises(w, bc, ln, rp_hi, basis, details))
     _fastest_rise(w, ln, rp_lo, defin)
     far = w.far_links()
     behind = any(True for _ in far_drivers(far, w.ctx.collected, ln.signal))
@@ -159,6 +165,27 @@ def line(w: Words, ln: LineInputs) -> None:
     if ln.receivers:
         _v_oh(w, ln, rp_hi)
     _fall(w, ln, far)
+
+
+def _never_rises(w: Words, bc, ln: LineInputs, rp_hi: float, basis: str,
+                 details: dict) -> Check:
+    """The rise-time check where the pins' leakage through the pull-up holds the line
+    below the rise's upper measuring level (at a rail corner): the line never completes
+    the rise and has no rise time (failed, with the reason, as a line that never falls
+    fails its fall time)."""
+    c = int(np.argmin(w.seg_in.vdd))
+    vdd = float(w.seg_in.vdd[c])
+    v_hi = float(w.lim.measuring_levels(vdd)[1])
+    up = ln.signal.upper()
+    held = max(vdd - ln.leakage * rp_hi, 0.0)
+    reason = (f"{up} never rises to {_f(v_hi, 'V')}, where its rise time ends: the pins' "
+              f"leakage {_f(ln.leakage, 'A')} through the pull-up holds it at {_f(held, 'V')} "
+              f"on the rail's {_f(vdd, 'V')}")
+    chk = make(bc, w.lim.source_edges, f"{up} has no rise time: {reason} ({basis})",
+               subject=up, details=details, reason=reason)
+    chk.margin = None
+    _failed(chk, "a smaller pull-up, or parts that leak less (see VOH)")
+    return chk
 
 
 def _fastest_rise(w: Words, ln: LineInputs, rp_lo: float, defin: str) -> None:
