@@ -355,6 +355,27 @@ def test_show_unknown_part_says_where_team_parts_come_from(lib, capsys, monkeypa
     assert "a design's own library line counts only where the design is read" in err
 
 
+def test_show_makes_a_title_s_escape_codes_visible_even_those_like_pinlib_s_own(
+        lib, capsys, monkeypatch):
+    # Once written raw: a code equal to one of pinlib's status colours was let through
+    # whoever wrote it, so a part's title could paint the terminal (a red "FAIL", text
+    # hidden). Every escape code of a file is shown; piped output holds no ESC at all.
+    _, team = lib
+    title = "Looks fine \\u001b[1;31mFAIL hidden\\u001b[0m \\u001b[32mgreen\\u001b[0m"
+    (team / "esc.toml").write_text(EEPROM.replace('id = "eeprom"', 'id = "esc"').replace(
+        'title = "Serial EEPROM, team"', f'title = "{title}"'), encoding="utf-8")
+    monkeypatch.setenv("NO_COLOR", "1")
+    code, out, err = run(capsys, "parts", "show", "esc", "--library", "team")
+    assert code == 0 and "\x1b" not in out + err
+    assert ("esc: Looks fine \\x1b[1;31mFAIL hidden\\x1b[0m \\x1b[32mgreen\\x1b[0m"
+            in out.splitlines())
+    # on a terminal too: the title is the file's, not pinlib's, and gets no colour
+    monkeypatch.delenv("NO_COLOR")
+    monkeypatch.setattr(sys.stdout, "isatty", lambda: True, raising=False)
+    code, out, _ = run(capsys, "parts", "show", "esc", "--library", "team")
+    assert code == 0 and "\x1b" not in out and "\\x1b[1;31mFAIL" in out
+
+
 # --- new and record ----------------------------------------------------------------------
 
 def test_new_then_record(lib, capsys):
@@ -407,6 +428,15 @@ def test_record_fits_80_columns_and_shows_what_it_wrote(lib, capsys, monkeypatch
                        "--library", "team")
     assert code == 0 and max(len(ln) for ln in out.splitlines()) <= 80, out
     assert "recorded pins.sclk.c_in = 5 pF (datasheet:" in out
+
+
+def test_record_shows_an_escape_code_of_its_source_not_obeyed(lib, capsys):
+    # the source given on the command line was echoed with its escape code raw
+    run(capsys, "parts", "new", "flash-e", "--from", "flash", "--into", "team")
+    code, out, err = run(capsys, "parts", "record", "flash-e", "sclk.c_in", "5 pF",
+                         "--source", "S\x1b[32mT", "--library", "team")
+    assert code == 0 and "\x1b" not in out + err
+    assert "(datasheet: S\\x1b[32mT)" in out
 
 
 @pytest.mark.parametrize(("field", "typed", "typ", "echoed"), [
