@@ -758,6 +758,32 @@ def test_check_of_one_part_file_lists_that_file_s_problems(lib, capsys, tmp_path
     assert code == 0 and json.loads(out)["files"] == 1
 
 
+@pytest.mark.parametrize("library", [(), ("--library", "linked")])
+def test_check_of_a_folder_reports_a_link_out_of_it(lib, capsys, tmp_path, library):
+    # "parts check linked --library linked" said "checked 0 files in linked: no problems",
+    # exit 0, where "parts check --library linked" reported the link it does not follow:
+    # the problem's file was resolved through the link, out of the folder checked
+    _, team = lib
+    linked = tmp_path / "linked"
+    linked.mkdir()
+    (linked / "link-out.toml").symlink_to(team / "eeprom.toml")
+    (linked / "sub").symlink_to(team, target_is_directory=True)
+    code, out, _ = run(capsys, "parts", "check", "linked", *library)
+    lines = out.splitlines()
+    assert code == 1, out
+    assert any(x.startswith("linked/link-out.toml: a link out of the library folder is "
+                            "not followed") for x in lines)
+    assert any(x.startswith("linked/sub: a link out of the library folder") for x in lines)
+    assert lines[-1] == "checked 0 files in linked: 2 problems"
+    code, out, _ = run(capsys, "parts", "check", "linked", *library, "--json")
+    assert code == 1 and len(json.loads(out)["problems"]) == 2
+    # the same from the whole library, and from the link named alone
+    assert run(capsys, "parts", "check", "--library", "linked")[0] == 1
+    code, out, _ = run(capsys, "parts", "check", "linked/link-out.toml")
+    assert code == 1 and out.splitlines()[-1] == ("checked 1 file, linked/link-out.toml: "
+                                                  "1 problem")
+
+
 def test_check_missing_folder(lib, capsys):
     code, _, err = run(capsys, "parts", "check", "nowhere")
     assert code == 2 and "nowhere, field 'FOLDER': library folder not found" in err, err
