@@ -451,6 +451,45 @@ def test_characters_that_act_on_a_terminal_are_shown_not_obeyed(tmp_path, capsys
     assert "\x1b" not in err and "\\x1b[2J" in err
 
 
+def test_a_file_s_code_like_pinlib_s_own_colours_is_shown_and_the_status_words_coloured(
+        tmp_path, capsys, monkeypatch):
+    # A title holding the very codes pinlib colours its status words with was let
+    # through raw (a green "PASS" of the file's own making). The file's text is now made
+    # visible before pinlib adds its colours: on a terminal every code left is pinlib's.
+    import re
+
+    text = DEMO.read_text(encoding="utf-8")
+    design = tmp_path / "painted.toml"
+    design.write_text(text.replace(
+        'title = "Greenhouse climate logger',
+        'title = "\\u001b[32mPASS\\u001b[0m \\u001b[1;31mhidden Greenhouse climate logger',
+        1), encoding="utf-8")
+    monkeypatch.setenv("NO_COLOR", "1")
+    main(["check", str(design)])
+    out = capsys.readouterr().out
+    assert "\x1b" not in out and "\\x1b[32mPASS\\x1b[0m \\x1b[1;31mhidden" in out
+    monkeypatch.delenv("NO_COLOR")
+    monkeypatch.setattr(sys.stdout, "isatty", lambda: True, raising=False)
+    main(["check", str(design)])
+    out = capsys.readouterr().out
+    assert "\x1b[33mWARN\x1b[0m" in out and "\x1b[32mPASS\x1b[0m" in out
+    assert "\\x1b[32mPASS\\x1b[0m \\x1b[1;31mhidden" in out
+    # every code left colours a status word
+    ours = re.compile(r"\x1b\[(?:32|33|1;31)m(?:PASS|WARN|FAIL)\x1b\[0m")
+    assert "\x1b" not in ours.sub("", out)
+
+
+def test_own_colours_are_kept_only_in_text_made_visible_first():
+    from pinlib.present.report import paint
+    from pinlib.present.visible import coloured_visible, visible
+
+    code = "\x1b[32m"  # green, as pinlib colours PASS
+    assert visible(f"{code}PASS\x1b[0m") == "\\x1b[32mPASS\\x1b[0m"
+    assert visible(visible(f"a{code}\r\u202e")) == visible(f"a{code}\r\u202e")
+    assert paint([f"PASS {code}title"]) == ["\x1b[32mPASS\x1b[0m \\x1b[32mtitle"]
+    assert coloured_visible("\x1b[32mPASS\x1b[0m \x1b[2J") == "\x1b[32mPASS\x1b[0m \\x1b[2J"
+
+
 def test_json_is_written_whole(monkeypatch):
     # The command line's standard output shows control characters as escapes, which
     # looks at each write: json.dump wrote a chunk per token (a 5 MB document took four

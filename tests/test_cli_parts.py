@@ -355,6 +355,27 @@ def test_show_unknown_part_says_where_team_parts_come_from(lib, capsys, monkeypa
     assert "a design's own library line counts only where the design is read" in err
 
 
+def test_show_makes_a_title_s_escape_codes_visible_even_those_like_pinlib_s_own(
+        lib, capsys, monkeypatch):
+    # Once written raw: a code equal to one of pinlib's status colours was let through
+    # whoever wrote it, so a part's title could paint the terminal (a red "FAIL", text
+    # hidden). Every escape code of a file is shown; piped output holds no ESC at all.
+    _, team = lib
+    title = "Looks fine \\u001b[1;31mFAIL hidden\\u001b[0m \\u001b[32mgreen\\u001b[0m"
+    (team / "esc.toml").write_text(EEPROM.replace('id = "eeprom"', 'id = "esc"').replace(
+        'title = "Serial EEPROM, team"', f'title = "{title}"'), encoding="utf-8")
+    monkeypatch.setenv("NO_COLOR", "1")
+    code, out, err = run(capsys, "parts", "show", "esc", "--library", "team")
+    assert code == 0 and "\x1b" not in out + err
+    assert ("esc: Looks fine \\x1b[1;31mFAIL hidden\\x1b[0m \\x1b[32mgreen\\x1b[0m"
+            in out.splitlines())
+    # on a terminal too: the title is the file's, not pinlib's, and gets no colour
+    monkeypatch.delenv("NO_COLOR")
+    monkeypatch.setattr(sys.stdout, "isatty", lambda: True, raising=False)
+    code, out, _ = run(capsys, "parts", "show", "esc", "--library", "team")
+    assert code == 0 and "\x1b" not in out and "\\x1b[1;31mFAIL" in out
+
+
 # --- new and record ----------------------------------------------------------------------
 
 def test_new_then_record(lib, capsys):
@@ -407,6 +428,15 @@ def test_record_fits_80_columns_and_shows_what_it_wrote(lib, capsys, monkeypatch
                        "--library", "team")
     assert code == 0 and max(len(ln) for ln in out.splitlines()) <= 80, out
     assert "recorded pins.sclk.c_in = 5 pF (datasheet:" in out
+
+
+def test_record_shows_an_escape_code_of_its_source_not_obeyed(lib, capsys):
+    # the source given on the command line was echoed with its escape code raw
+    run(capsys, "parts", "new", "flash-e", "--from", "flash", "--into", "team")
+    code, out, err = run(capsys, "parts", "record", "flash-e", "sclk.c_in", "5 pF",
+                         "--source", "S\x1b[32mT", "--library", "team")
+    assert code == 0 and "\x1b" not in out + err
+    assert "(datasheet: S\\x1b[32mT)" in out
 
 
 @pytest.mark.parametrize(("field", "typed", "typ", "echoed"), [
@@ -726,6 +756,32 @@ def test_check_of_one_part_file_lists_that_file_s_problems(lib, capsys, tmp_path
     (team / "eeprom.toml").write_text(EEPROM, encoding="utf-8")
     code, out, _ = run(capsys, "parts", "check", "team/eeprom.toml", "--json")
     assert code == 0 and json.loads(out)["files"] == 1
+
+
+@pytest.mark.parametrize("library", [(), ("--library", "linked")])
+def test_check_of_a_folder_reports_a_link_out_of_it(lib, capsys, tmp_path, library):
+    # "parts check linked --library linked" said "checked 0 files in linked: no problems",
+    # exit 0, where "parts check --library linked" reported the link it does not follow:
+    # the problem's file was resolved through the link, out of the folder checked
+    _, team = lib
+    linked = tmp_path / "linked"
+    linked.mkdir()
+    (linked / "link-out.toml").symlink_to(team / "eeprom.toml")
+    (linked / "sub").symlink_to(team, target_is_directory=True)
+    code, out, _ = run(capsys, "parts", "check", "linked", *library)
+    lines = out.splitlines()
+    assert code == 1, out
+    assert any(x.startswith("linked/link-out.toml: a link out of the library folder is "
+                            "not followed") for x in lines)
+    assert any(x.startswith("linked/sub: a link out of the library folder") for x in lines)
+    assert lines[-1] == "checked 0 files in linked: 2 problems"
+    code, out, _ = run(capsys, "parts", "check", "linked", *library, "--json")
+    assert code == 1 and len(json.loads(out)["problems"]) == 2
+    # the same from the whole library, and from the link named alone
+    assert run(capsys, "parts", "check", "--library", "linked")[0] == 1
+    code, out, _ = run(capsys, "parts", "check", "linked/link-out.toml")
+    assert code == 1 and out.splitlines()[-1] == ("checked 1 file, linked/link-out.toml: "
+                                                  "1 problem")
 
 
 def test_check_missing_folder(lib, capsys):

@@ -567,3 +567,199 @@ def test_a_file_without_blank_lines_between_tables_keeps_its_layout(lib_dirs):
     new = 'v_il = { value = "0.3 VDD", basis = "datasheet", source = "rev A" }\n'
     assert new + "[pins.scl]" in text
     assert text.replace(new, "") == tight.replace("2020-01-01", _recorded(text, since))
+
+
+# --- the layout kept, in time linear in the file ----------------------------------------
+#
+# record.py once matched the lines before and after an edit with difflib on the whole
+# file, which costs about the product of the two lengths on a file of many like lines (a
+# part of 20,000 pins took minutes).  These are that code, kept as the reference the
+# faster matching (record._matching_blocks) must agree with byte for byte.
+
+def _reference_keep_untouched_lines(old_text, before, after):
+    import difflib
+
+    if before == old_text:
+        return after
+    old_lines = old_text.splitlines(keepends=True)
+    b, a = before.splitlines(keepends=True), after.splitlines(keepends=True)
+    if len(old_lines) != len(b):
+        return after
+    out = []
+    matcher = difflib.SequenceMatcher(a=b, b=a, autojunk=False)
+    for tag, i1, i2, j1, j2 in matcher.get_opcodes():
+        out += old_lines[i1:i2] if tag == "equal" else a[j1:j2]
+    return "".join(out)
+
+
+def _reference_blank_before_tables(old_text, new_text):
+    import difflib
+
+    from pinlib.library.record import _HEADER
+
+    old_lines = old_text.splitlines(keepends=True)
+    lines = new_text.splitlines(keepends=True)
+    was = {}
+    matcher = difflib.SequenceMatcher(a=old_lines, b=lines, autojunk=False)
+    for tag, i1, _i2, j1, j2 in matcher.get_opcodes():
+        if tag == "equal":
+            was.update((j, i1 + j - j1) for j in range(j1, j2))
+    out = []
+    for j, line in enumerate(lines):
+        prev = out[-1] if out else ""
+        if _HEADER.match(line) and prev.strip() and not prev.lstrip().startswith("#"):
+            i = was.get(j)
+            if i is None or (i > 0 and not old_lines[i - 1].strip()):
+                out.append("\n")
+        out.append(line)
+    return "".join(out)
+
+
+# Hand-edited team part files (invented test parts): comments between and after tables,
+# a file without blank lines, spacing tomlkit does not keep, CRLF line ends, a table
+# left empty, repeated lines.
+_HAND_EDITED = {
+    "comments": CHILD,
+    "tight": (CHILD.splitlines(keepends=True)[0] + "".join(
+        x for x in CHILD.splitlines(keepends=True)[1:] if x.strip() and x[0] != "#")),
+    "spacing": CHILD.replace("provenance = { basis", "provenance = {basis").replace(
+        "recorded = 2020-01-01 }", "recorded = 2020-01-01}").replace(
+        '[pins.scl]\nc_in = "8 pF"', '[pins.scl]\nc_in   =   "8 pF"  # spaced'),
+    "crlf": CHILD.replace("\n", "\r\n"),
+    "repeated": CHILD.replace(
+        "# clock pin, below\n[pins.scl]\n",
+        "# clock pin, below\n\n\n# clock pin, below\n[pins.scl]\n").replace(
+        "[timing]\n", "[timing]\n# timing\n# timing\n\n") + "\n# end\n\n# end\n",
+    "empty-table": CHILD.replace("# timing follows\n[timing]\nf_max = \"1 MHz\"\n",
+                                 "[pins.int]\nfunction = \"gpio\"\n\n[timing]\n\n"
+                                 "# nothing yet\n"),
+}
+_RECORDS = [("sda.c_in", "6 pF", None), ("scl.v_il", "0.3 VDD", None),
+            ("timing.t_hold", "5 ns", None), ("supply.min", "1.8 V", None),
+            ("sda.v_ih", "0.7 VDD", "0.65 VDD"), ("scl.c_in", "7 pF", None)]
+
+
+def _record_all(team: Path, records) -> list[bytes]:
+    """The file's bytes after each record (None where the record was refused)."""
+    out = []
+    for field, value, typ in records:
+        try:
+            record_value(load(team), "child", field, value, "rev C, table 7", typ=typ)
+        except LibraryError as err:
+            out.append(("refused", err.message))
+            continue
+        out.append((team / "child.toml").read_bytes())
+    return out
+
+
+@pytest.mark.parametrize("name", sorted(_HAND_EDITED))
+def test_recording_writes_the_bytes_the_whole_file_matcher_wrote(lib_dirs, monkeypatch, name):
+    from pinlib.library import record
+
+    _, team = lib_dirs
+    (team / "child.toml").write_bytes(_HAND_EDITED[name].encode("utf-8"))
+    reference = team.parent / "reference"
+    reference.mkdir()
+    (reference / "child.toml").write_bytes(_HAND_EDITED[name].encode("utf-8"))
+    got = _record_all(team, _RECORDS)
+    monkeypatch.setattr(record, "_keep_untouched_lines", _reference_keep_untouched_lines)
+    monkeypatch.setattr(record, "_blank_before_tables", _reference_blank_before_tables)
+    assert got == _record_all(reference, _RECORDS)
+    assert any(isinstance(x, bytes) for x in got)
+
+
+def _many_like_pins(n: int) -> str:
+    """A part file of ``n`` pins written alike (invented test part): the lines that repeat
+    on every pin are what made the whole-file matcher slow."""
+    lines = ['format = "pinlib.part/1"', 'id = "child"', 'title = "Many pins"',
+             'category = "logic"', 'supply = { min = "1.7 V", max = "5.5 V" }',
+             'provenance = { basis = "datasheet", source = "rev A", recorded = 2020-01-01 }',
+             ""]
+    for i in range(n):
+        lines += [f"# pin {i}", f"[pins.p{i}]", 'function = "gpio"',
+                  f'c_in = {{ value = "{5 + i % 7} pF", source = "table {i}" }}', ""]
+    return "\n".join(lines)
+
+
+def test_recording_into_a_file_of_many_like_pins_writes_the_reference_bytes(
+        lib_dirs, monkeypatch):
+    from pinlib.library import record
+
+    _, team = lib_dirs
+    text = _many_like_pins(300)  # 1,500 lines: beyond what is matched whole
+    (team / "child.toml").write_text(text, encoding="utf-8")
+    reference = team.parent / "reference"
+    reference.mkdir()
+    (reference / "child.toml").write_text(text, encoding="utf-8")
+    records = [("p0.c_in", "9 pF", None), ("p150.v_il", "0.3 VDD", None),
+               ("p299.c_in", "8 pF", "7 pF"), ("timing.f_max", "1 MHz", None),
+               ("p7.leakage", "1 µA", None)]
+    got = _record_all(team, records)
+    monkeypatch.setattr(record, "_keep_untouched_lines", _reference_keep_untouched_lines)
+    monkeypatch.setattr(record, "_blank_before_tables", _reference_blank_before_tables)
+    assert got == _record_all(reference, records)
+    assert all(isinstance(x, bytes) for x in got)
+
+
+def _valid_blocks(a, b, blocks) -> bool:
+    i0 = j0 = 0
+    for i, j, k in blocks:
+        if i < i0 or j < j0 or k <= 0 or a[i:i + k] != b[j:j + k]:
+            return False
+        i0, j0 = i + k, j + k
+    return True
+
+
+@pytest.mark.parametrize("seed", [1, 2, 3])
+def test_matching_after_one_edit_is_difflibs(seed):
+    import difflib
+
+    from pinlib.library.record import _matching_blocks
+
+    rng = random.Random(seed)
+    lines = _many_like_pins(rng.randint(60, 200)).splitlines(keepends=True)
+    pool = ["\n", "[pins.x]\n", 'function = "gpio"\n', "# pin 3\n"]
+    for _ in range(30):
+        new = list(lines)
+        at = rng.randrange(len(new))
+        kind = rng.choice(["insert", "replace", "delete", "repeat"])
+        if kind == "insert":
+            new[at:at] = rng.choices(pool + lines, k=rng.randint(1, 4))
+        elif kind == "replace":
+            new[at] = rng.choice(pool + lines)
+        elif kind == "delete":
+            del new[at:at + rng.randint(1, 3)]
+        else:  # the lines that follow, once more: where to match them is ambiguous
+            new[at:at] = lines[at:at + rng.randint(1, 6)]
+        want = [m for m in difflib.SequenceMatcher(a=lines, b=new, autojunk=False)
+                .get_matching_blocks() if m.size]
+        assert _matching_blocks(lines, new) == [tuple(m) for m in want], (kind, at)
+
+
+def test_matching_edits_far_apart_stays_a_valid_matching():
+    # two files that share neither end nor an edit region small enough to match whole: the
+    # lines met once in each anchor the matching, which must still pair only equal lines
+    from pinlib.library.record import _matching_blocks
+
+    a = _many_like_pins(2000).splitlines(keepends=True)
+    b = ["# changed\n"] + a[1:5000] + ["# inserted\n"] * 3 + a[5000:-1] + ["# changed\n"]
+    blocks = _matching_blocks(a, b)
+    assert _valid_blocks(a, b, blocks)
+    assert sum(k for _i, _j, k in blocks) == len(a) - 2  # all but the two changed
+
+
+def test_a_lock_left_by_a_killed_writer_is_taken_over(tmp_path):
+    # SIGKILL frees the lock (an flock on the open lock file), not the lock file: the
+    # next record takes the lock, writes, and removes the file
+    team = tmp_path / "team"
+    team.mkdir()
+    path = _many_pins_part(team)
+    proc = _writer(team, 0, 100)
+    assert proc.stdout.readline()
+    _kill_when(proc, team, "in-write", random.Random(5))
+    proc.communicate(timeout=60)
+    lock = team / ".many.toml.lock"
+    lock.touch()  # as a kill between taking the lock and letting it go leaves it
+    record_value(load_library([team], builtin=False, env=False), "many", "p99.c_in",
+                 "1 pF", "after the kill")
+    assert _c_in_values(path)[99] == "1 pF" and not lock.exists()

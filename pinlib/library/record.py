@@ -586,10 +586,105 @@ def _keep_untouched_lines(old_text: str, before: str, after: str) -> str:
     if len(old_lines) != len(b):
         return after
     out: list[str] = []
-    matcher = difflib.SequenceMatcher(a=b, b=a, autojunk=False)
-    for tag, i1, i2, j1, j2 in matcher.get_opcodes():
-        out += old_lines[i1:i2] if tag == "equal" else a[j1:j2]
+    at = 0  # the next edited line not yet taken
+    for i, j, k in _matching_blocks(b, a):
+        out += a[at:j]
+        out += old_lines[i:i + k]
+        at = j + k
+    out += a[at:]
     return "".join(out)
+
+
+#: The largest stretch of lines (the product of its lengths before and after) that
+#: :func:`_matching_blocks` hands to difflib, whose matcher costs up to that product.
+_DIFF_CELLS = 40_000
+
+
+def _matching_blocks(a: list[str], b: list[str]) -> list[tuple[int, int, int]]:
+    """The lines ``a`` and ``b`` share, as ``(i, j, k)`` with ``a[i:i+k] == b[j:j+k]``,
+    in order: what ``difflib.SequenceMatcher(a=a, b=b, autojunk=False)`` matches on the
+    texts an edit leaves, in time about linear in their length.
+
+    The matcher takes the longest run of equal lines first, then does the same on each
+    side of it.  After one edit that run is the lines before it or those after it, found
+    here by comparing from either end (the longer first; the lines before it when they tie,
+    as the matcher does), until what is left is the edited stretch, small enough for the
+    matcher itself.  difflib on the whole file costs as much as the product of the two
+    lengths in a file of many like lines (a part of 20,000 pins, each with its blank line
+    and ``function = "gpio"``: minutes).  A stretch left that is still large and shares
+    neither end (lines edited far apart) is split at the lines that occur once in each,
+    in order (a header ``[pins.x]``), and its pieces are matched as above, except that a
+    piece still large with neither end shared is left unmatched (taken as rewritten):
+    the lines matched may then differ from the matcher's, and the cost stays bounded.
+    """
+    blocks: list[tuple[int, int, int]] = []
+    todo = [(0, len(a), 0, len(b), True)]
+    while todo:
+        alo, ahi, blo, bhi, split = todo.pop()
+        if alo == ahi or blo == bhi:
+            continue
+        if (ahi - alo) * (bhi - blo) <= _DIFF_CELLS:
+            matcher = difflib.SequenceMatcher(a=a[alo:ahi], b=b[blo:bhi], autojunk=False)
+            blocks += [(alo + i, blo + j, k) for i, j, k in matcher.get_matching_blocks() if k]
+            continue
+        head = 0
+        while alo + head < ahi and blo + head < bhi and a[alo + head] == b[blo + head]:
+            head += 1
+        tail = 0
+        while ahi - tail > alo and bhi - tail > blo and a[ahi - tail - 1] == b[bhi - tail - 1]:
+            tail += 1
+        if head and head >= tail:
+            blocks.append((alo, blo, head))
+            todo.append((alo + head, ahi, blo + head, bhi, split))
+        elif tail:
+            blocks.append((ahi - tail, bhi - tail, tail))
+            todo.append((alo, ahi - tail, blo, bhi - tail, split))
+        elif split:
+            todo += _split_at_unique_lines(a, b, alo, ahi, blo, bhi)
+    return sorted(blocks)
+
+
+def _split_at_unique_lines(a, b, alo, ahi, blo, bhi) -> list[tuple]:
+    """The stretches between the lines that occur once in ``a[alo:ahi]`` and once in
+    ``b[blo:bhi]``, kept where they come in the same order in both (the longest such
+    chain, in n log n), each as a stretch to match, not split again; and those lines as
+    matches of one line each."""
+    import bisect
+
+    def once(seq, lo, hi) -> dict:
+        seen: dict = {}
+        for n in range(lo, hi):
+            seen[seq[n]] = -1 if seq[n] in seen else n
+        return seen
+
+    in_a, in_b = once(a, alo, ahi), once(b, blo, bhi)
+    pairs = [(i, in_b[line]) for line, i in in_a.items()
+             if i >= 0 and in_b.get(line, -1) >= 0]
+    pairs.sort()
+    # the longest chain of pairs rising in b (patience sorting)
+    tops: list[int] = []  # the smallest last j of a chain of each length
+    ends: list[int] = []  # the pair that ends it
+    back: list[int] = []  # each pair's predecessor in its chain
+    for n, (_i, j) in enumerate(pairs):
+        at = bisect.bisect_left(tops, j)
+        back.append(ends[at - 1] if at else -1)
+        if at == len(tops):
+            tops.append(j)
+            ends.append(n)
+        else:
+            tops[at], ends[at] = j, n
+    chain, n = [], ends[-1] if ends else -1
+    while n >= 0:
+        chain.append(pairs[n])
+        n = back[n]
+    chain.reverse()
+    out, i0, j0 = [], alo, blo
+    for i, j in chain:
+        out.append((i0, i, j0, j, False))
+        out.append((i, i + 1, j, j + 1, False))
+        i0, j0 = i + 1, j + 1
+    out.append((i0, ahi, j0, bhi, False))
+    return out
 
 
 _HEADER = re.compile(r"^\s*\[")
@@ -606,10 +701,8 @@ def _blank_before_tables(old_text: str, new_text: str) -> str:
     old_lines = old_text.splitlines(keepends=True)
     lines = new_text.splitlines(keepends=True)
     was = {}  # the line an unchanged line had in the old text
-    matcher = difflib.SequenceMatcher(a=old_lines, b=lines, autojunk=False)
-    for tag, i1, _i2, j1, j2 in matcher.get_opcodes():
-        if tag == "equal":
-            was.update((j, i1 + j - j1) for j in range(j1, j2))
+    for i, j, k in _matching_blocks(old_lines, lines):
+        was.update((j + n, i + n) for n in range(k))
     out: list[str] = []
     for j, line in enumerate(lines):
         prev = out[-1] if out else ""

@@ -32,6 +32,7 @@ from pinlib.model.result import (
 from pinlib.present.detail import detail_lines
 from pinlib.present.terminal import DEFAULT_WIDTH, status_word, wrap
 from pinlib.present.values import counts, format_value, search_bound_words, with_fix
+from pinlib.present.visible import visible
 
 __all__ = ["format_text", "format_value", "problem_line", "bus_line", "coupling_line", "counts",
            "CAUTION_LINE", "MODES", "paint", "fit"]
@@ -356,9 +357,14 @@ def _shell_words(command: str) -> list[str]:
 
 
 def paint(lines: list[str]) -> list[str]:
-    """The status words of ``lines`` in colour (after wrapping: widths count letters)."""
+    """The status words of ``lines`` in colour (after wrapping: widths count letters).
+
+    Each line is first made :func:`~pinlib.present.visible.visible`: a file's escape
+    code in it is shown, so that the only codes left are the status colours added here
+    (write the lines with :func:`~pinlib.present.visible.write_coloured`)."""
     status = re.compile(_STATUS_RE)
-    return [status.sub(lambda m: status_word(m.group(1).lower(), True), ln) for ln in lines]
+    return [status.sub(lambda m: status_word(m.group(1).lower(), True), visible(ln))
+            for ln in lines]
 
 
 def format_text(result: DesignResult, *, mode: str = "summary", width: int = DEFAULT_WIDTH,
@@ -382,7 +388,10 @@ def format_text(result: DesignResult, *, mode: str = "summary", width: int = DEF
     Returns
     -------
     str
-        Lines ready to print, each at most ``width`` characters (escape codes aside).
+        Lines ready to print, each at most ``width`` characters (escape codes aside),
+        every character of a file that would act on a terminal shown as its escape
+        (:func:`~pinlib.present.visible.visible`): the only escape codes are the status
+        colours (write it with :func:`~pinlib.present.visible.write_coloured`).
     """
     if mode not in MODES:
         raise ValueError(f"mode must be one of {MODES}, not {mode!r}")
@@ -393,8 +402,7 @@ def format_text(result: DesignResult, *, mode: str = "summary", width: int = DEF
     else:
         lines = _summary(result, width, more, quiet=mode == "quiet")
     lines = fit(lines, width)
-    if colour:
-        lines = paint(lines)
+    lines = paint(lines) if colour else [visible(ln) for ln in lines]
     return "\n".join(lines) + "\n"
 
 

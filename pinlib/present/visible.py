@@ -1,15 +1,21 @@
 """Text written to a terminal shows the characters of the user's files; none acts on it.
 
-A design's title, a part's title, a note or a value comes from a file that anyone may
-have written, and some characters act on a terminal instead of showing: an escape
-sequence clears the screen, moves the cursor, retitles the window or hides text; a
-carriage return overwrites the line; a right-to-left override reverses what follows
-(a FAIL may read LIAF, or a number its digits backwards).  The command line writes its
-standard output and standard error through :class:`VisibleStream`, which shows each
-such character as its escape (``\\x1b``, ``\\x0d``, ``\\u202e``) and lets through only the
-line breaks and tabs, and the colour codes pinlib itself writes around a status word
-(:data:`STATUS_SGR`).  Standard error also keeps carriage returns: a progress bar
-redraws its line with them.  What pinlib stores is untouched: a title is written back to
+A design's title, a part's title, a note, a value or a command's argument comes from
+someone else, and some characters act on a terminal instead of showing: an escape
+sequence clears the screen, moves the cursor, retitles the window, colours or hides text;
+a carriage return overwrites the line; a right-to-left override reverses what follows (a
+FAIL may read LIAF, or a number its digits backwards).  The command line writes its
+standard output and standard error through :class:`VisibleStream`, which shows each such
+character as its escape (``\\x1b``, ``\\x0d``, ``\\u202e``) and lets through only the line
+breaks and tabs (standard error also keeps carriage returns: a progress bar redraws its
+line with them).  An escape code is shown whatever it is, one that looks like pinlib's
+own colours included.
+
+pinlib's own colours (:data:`STATUS_SGR`, the status words on a terminal) are added to
+text that went through :func:`visible` first (:func:`pinlib.present.report.paint`), and
+that text is written with :func:`write_coloured`: past the stream's filter, which would
+show the colour codes too, with :func:`coloured_visible` in its place (the status codes
+kept, anything else shown).  What pinlib stores is untouched: a title is written back to
 its file as it was read.
 """
 
@@ -17,7 +23,8 @@ from __future__ import annotations
 
 import re
 
-__all__ = ["STATUS_SGR", "RESET", "visible", "VisibleStream"]
+__all__ = ["STATUS_SGR", "RESET", "visible", "coloured_visible", "write_coloured",
+           "VisibleStream"]
 
 #: The SGR colour codes of the status words: green, yellow, bold red.
 STATUS_SGR = {"pass": "32", "warn": "33", "fail": "1;31"}
@@ -29,23 +36,44 @@ _OWN = "|".join(re.escape(f"\x1b[{code}m") for code in (*STATUS_SGR.values(), RE
 # controls, and the bidirectional embeddings, overrides and isolates
 _BIDI = "\u202a-\u202e\u2066-\u2069"
 _PATTERNS = {
-    False: re.compile(f"({_OWN})|[\x00-\x08\x0b-\x1f\x7f-\x9f{_BIDI}]"),
-    True: re.compile(f"({_OWN})|[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f{_BIDI}]"),
+    False: re.compile(f"[\x00-\x08\x0b-\x1f\x7f-\x9f{_BIDI}]"),
+    True: re.compile(f"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f{_BIDI}]"),
 }
+_COLOURED = re.compile(f"({_OWN})|[\x00-\x08\x0b-\x1f\x7f-\x9f{_BIDI}]")
 
 
 def _shown(match: re.Match) -> str:
-    if match.group(1):
-        return match.group(1)  # pinlib's own colour code
     ch = match.group(0)
     return f"\\x{ord(ch):02x}" if ord(ch) < 0x100 else f"\\u{ord(ch):04x}"
 
 
+def _own_or_shown(match: re.Match) -> str:
+    return match.group(1) or _shown(match)
+
+
 def visible(text: str, *, keep_cr: bool = False) -> str:
     """``text`` with every character that would act on a terminal shown as its escape
-    (see the module notes); line breaks, tabs and pinlib's own status colours kept, and
-    carriage returns where ``keep_cr``."""
+    (see the module notes); line breaks and tabs kept, and carriage returns where
+    ``keep_cr``.  Shown text holds no such character: showing it again changes nothing."""
     return _PATTERNS[keep_cr].sub(_shown, text)
+
+
+def coloured_visible(text: str) -> str:
+    """``text`` as :func:`visible` shows it, but for pinlib's status colour codes, kept.
+    Only for text whose every character from a file or an argument went through
+    :func:`visible` before pinlib added those codes (:func:`pinlib.present.report.paint`):
+    applied to anything else, a file's code that looks like pinlib's would act."""
+    return _COLOURED.sub(_own_or_shown, text)
+
+
+def write_coloured(stream, text: str) -> None:
+    """Write ``text`` that :func:`pinlib.present.report.paint` coloured (or that went
+    through :func:`visible` line by line) to ``stream``: the status colours act on a
+    terminal, nothing else does (:func:`coloured_visible`)."""
+    if isinstance(stream, VisibleStream):
+        stream.write_coloured(text)
+    else:
+        stream.write(coloured_visible(text))
 
 
 class VisibleStream:
@@ -58,6 +86,11 @@ class VisibleStream:
 
     def write(self, text: str) -> int:
         self._stream.write(visible(text, keep_cr=self._keep_cr))
+        return len(text)
+
+    def write_coloured(self, text: str) -> int:
+        """Write text with pinlib's status colours (see :func:`write_coloured`)."""
+        self._stream.write(coloured_visible(text))
         return len(text)
 
     def writelines(self, lines) -> None:

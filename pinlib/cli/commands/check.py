@@ -243,7 +243,9 @@ def _run_one(args) -> int:
 
         write_json(out)
     else:
-        sys.stdout.write(render_text(result, args, design_arg=args.design))
+        from pinlib.present.visible import write_coloured
+
+        write_coloured(sys.stdout, render_text(result, args, design_arg=args.design))
         if changes is not None and not getattr(args, "quiet", False):
             sys.stdout.write("\n" + _fitted(changes.format_text()))
         for value in extra.values():

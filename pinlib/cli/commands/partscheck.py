@@ -12,12 +12,18 @@ from pinlib.core.labels import plural_s
 from pinlib.present.terminal import shown_path as _rel
 
 
-def _under(path, folder: Path) -> bool:
-    try:
-        Path(path).resolve().relative_to(folder)
-    except ValueError:
-        return False
-    return True
+def _places(path) -> tuple[Path, Path]:
+    """Where ``path`` lies (its folder resolved, its own name kept: a link where it is)
+    and what it leads to (resolved)."""
+    path = Path(path)
+    return path.parent.resolve() / path.name, path.resolve()
+
+
+def _under(path, root: tuple[Path, Path]) -> bool:
+    """Whether ``path`` lies in, or leads into, ``root`` (:func:`_places` of the folder or
+    file checked, or is that file).  A link in the folder that leads out of it lies in it:
+    the walk's problem with it is the folder's."""
+    return any(p == r or p.is_relative_to(r) for p in _places(path) for r in root)
 
 
 def run_check(args, load) -> int:
@@ -48,7 +54,7 @@ def run_check(args, load) -> int:
         elif not folder.is_dir():
             raise InputError(M.NOT_A_FOLDER, file=str(folder), field="FOLDER")
         lib = load(args, extra=[folder])
-        root = (one or folder).resolve()  # _under(file, file) holds: that file alone
+        root = _places(one or folder)  # _under(file, file) holds: that file alone
         problems = [p for p in lib.problems if p.file and _under(p.file, root)]
         problems += [w for pid in lib.parts if _under(lib.files[pid].path, root)
                      for w in part_warnings(lib.parts[pid], lib, own_only=True)]

@@ -214,7 +214,9 @@ def run(args) -> int:
         from pinlib.present.report import CAUTION_LINE
 
         out.append(CAUTION_LINE)
-    sys.stdout.write(_fitted(out))
+    from pinlib.present.visible import write_coloured
+
+    write_coloured(sys.stdout, _fitted(out))
     return after.exit_code()
 
 
@@ -223,6 +225,7 @@ def _fitted(lines: list[str]) -> str:
     indented; status words coloured on a terminal unless NO_COLOR is set."""
     from pinlib.present.report import paint
     from pinlib.present.terminal import use_colour, width, wrap
+    from pinlib.present.visible import visible
 
     cols = width()
     out: list[str] = []
@@ -232,8 +235,8 @@ def _fitted(lines: list[str]) -> str:
         else:
             indent = ln[: len(ln) - len(ln.lstrip())]
             out += wrap(ln.strip(), cols, indent)
-    if use_colour(sys.stdout):
-        out = paint(out)
+    # the lines made visible before any colour is added (present.visible)
+    out = paint(out) if use_colour(sys.stdout) else [visible(ln) for ln in out]
     return "\n".join(out) + "\n"
 
 
