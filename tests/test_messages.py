@@ -1584,6 +1584,18 @@ def _(env):
     return _fails(lambda e: e.design(I2C_BUS.replace(', role = "controller"', "")), env)
 
 
+@case("SPI_ONE_CONTROLLER")
+def _(env):
+    # invented: a second microcontroller marked controller beside U1
+    err = _fails(lambda e: e.design(SPI_BUS.replace(
+        '{ ref = "U7", part = "nor-flash-spi" },',
+        '{ ref = "U7", part = "nor-flash-spi" },\n'
+        '  { ref = "U8", part = "mcu-3v3", role = "controller" },')), env)
+    assert err.field == "bus[0].devices[2].role" and err.line == 18  # U8's line
+    assert "U1 is the bus's controller" in err.message
+    return err
+
+
 @case("BRIDGE_NEEDS_SIDE")
 def _(env):
     return _fails(lambda e: e.design(_device("level-translator-mosfet")), env)

@@ -144,6 +144,8 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
     if not any(d.is_controller for d in devices):
         raise err(M.BUS_NEEDS_CONTROLLER, bloc + ("devices",),
                   hint="mark one device role = \"controller\"")
+    if rb.protocol == "spi":
+        _one_spi_controller(devices, err)
     if rb.protocol == "gpio":
         _check_gpio_pins(devices, tuple(rb.lines), err)
     else:
@@ -189,6 +191,24 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
     return Bus(rb.id, rb.protocol, None, rb.clock, rb.supply, rb.supply_tolerance or 0.0, (),
                devices, lines, rb.spi_mode, rb.title, rb.capacitance_tolerance or 0.0,
                rb.length_tolerance or 0.0, bloc)
+
+
+def _one_spi_controller(devices, err) -> None:
+    """An SPI bus has one controller: it alone drives SCLK, COPI and CS, and the engine
+    solves each line from it.  A second device marked ``role = "controller"`` is refused
+    at its ``role`` (left in, it would be on no line as a driver and in no timing path:
+    left out without a word).  Several controllers on an I2C or SMBus bus are legal
+    (arbitration), and on a GPIO bus the drivers are the pins' own drives."""
+    ctrls = [d for d in devices if d.is_controller]
+    if len(ctrls) < 2:
+        return
+    first, second = ctrls[0], ctrls[1]
+    raise err(M.SPI_ONE_CONTROLLER, second.loc + ("role",), value=second.role,
+              expected="one controller per SPI bus",
+              hint=f"{first.ref} is the bus's controller (field "
+                   f"'{dotted_path(first.loc + ('role',))}'); describe {second.ref}'s pins "
+                   "on this bus as a load (role = \"peripheral\"), or give it an SPI bus "
+                   "of its own")
 
 
 def _line_pullup_key(trace) -> str | None:
