@@ -139,6 +139,22 @@ BAD = {
                               ["a second controller on an SPI bus (got 'controller')",
                                "expected one controller per SPI bus",
                                "U1 is the bus's controller", 'role = "peripheral"']),
+    # a target marked controller whose SCL only reads the line: nothing clocks the bus
+    "i2c-controller-reads-scl": (ONE_BUS.replace('"t-ctrl-3v3"', '"t-target"')
+                                 .replace("PART", "t-target"), "bus[0].devices[0].role", 10,
+                                 ["a controller must pull SCL low",
+                                  "t-target pin 'scl' (i2c-scl) has drive = \"input\"",
+                                  "no device on this bus can pull SCL low"]),
+    "translator-as-controller": (ONE_BUS.replace('"t-ctrl-3v3", role = "controller"',
+                                                 '"t-fet-translator", side = "a", '
+                                                 'role = "controller"')
+                                 .replace("PART", "t-ctrl-3v3"), "bus[0].devices[0].role", 10,
+                                 ["a controller must pull SCL low", "pass-transistor",
+                                  "U2 can pull SCL low"]),
+    "segment-not-joined": (SEGMENTS.replace(
+        '  { ref = "Q1", part = "t-fet-translator", side = "b" },\n', ""),
+        "bus[0].segment[1].devices", 17,
+        ["no bridging part joins this segment to the controller's", "(got 'b-2')"]),
     "empty-segment-id": (SEGMENTS.replace('[[bus.segment]]\nsupply = "1.8 V"',
                                           '[[bus.segment]]\nid = ""\nsupply = "1.8 V"'),
                          "bus[0].segment[1].id", 17, ["text shorter than 1 character"]),
