@@ -1356,3 +1356,31 @@ def test_a_tolerance_under_one_percent_keeps_its_digits(tmp_path):
     window = [c for c in res.checks if c.id == "pullup-window"][0]
     assert "0.5 %" in window.message and "0%" not in window.message
 
+
+def test_a_segment_two_pass_transistors_away_is_not_called_undriven(tmp_path):
+    # invented: 5 V -> Q1 -> 3.3 V (the two translators alone) -> Q2 -> 1.8 V.  The far
+    # segment's SCL is pulled low by U1 through Q1 and Q2; the note said no device on
+    # the segment drove it.  The engine works out a low level across one transistor
+    # only, so the note now says where the low comes from and what is not worked out.
+    seg = """
+[[bus.segment]]
+id = "{id}"
+supply = "{v}"
+trace = {{ length = "5 cm", capacitance = "1 pF/cm" }}
+devices = [{devices}]
+"""
+    body = '\n[[bus]]\nid = "b"\nprotocol = "i2c"\nmode = "standard"\n' + "".join(
+        seg.format(id=i, v=v, devices=", ".join(d)) for i, v, d in (
+            ("main", "5 V", ['{ ref = "U1", part = "mcu-5v", role = "controller" }',
+                             '{ ref = "Q1", part = "level-translator-mosfet", side = "b" }']),
+            ("mid", "3.3 V", ['{ ref = "Q1", part = "level-translator-mosfet", side = "a" }',
+                              '{ ref = "Q2", part = "level-translator-mosfet", side = "b" }']),
+            ("low", "1.8 V", ['{ ref = "Q2", part = "level-translator-mosfet", side = "a" }',
+                              '{ ref = "U9", part = "temp-humidity-sensor" }'])))
+    res = bus_result(tmp_path, body)
+    low = next(s for s in res.segments if s.id == "low")
+    notes = " ".join(low.notes)
+    assert "no device on this segment drives" not in notes
+    assert ("SCL: pulled low only from beyond the segments next to this one, through two "
+            "or more bridging parts in a row (U1)") in notes
+    assert "not worked out here" in notes
