@@ -10,6 +10,7 @@ from pathlib import Path
 import pytest
 
 from pinlib.cli import main
+from pinlib.core.errors import DesignError
 from pinlib.core.tomlfile import tomllib
 from pinlib.engines.dispatch import check_design
 from pinlib.model.design import load_design
@@ -68,13 +69,27 @@ def test_new_without_a_controller_says_who_stands_in_and_picks_a_common_rail(tmp
     assert main(["new", str(path), "--part", "U2=rtc-i2c", "--part", "U3=eeprom-i2c"]) == 0
     err = " ".join(capsys.readouterr().err.split())
     assert "note: no part given drives SCL: U2 stands in as the controller" in err, err
+    assert "'pinlib check' refuses the bus" in err, err
     text = path.read_text(encoding="utf-8")
     assert "U2 stands in as the controller" in text
     assert all(len(line) <= 80 for line in text.splitlines())
-    (bus,) = load_design(path).buses
+    # the stand-in cannot clock the bus (its SCL pin is an input): the loader refuses it
+    # at its role, as the note says, until the part that drives SCL is added
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    assert info.value.field == "bus[0].devices[0].role"
+    assert "a controller must pull SCL low" in info.value.message
     # common practice, no source: 3.3 V, the first of the common rails within both ranges
-    assert float(bus.supply) == pytest.approx(3.3, rel=1e-12)
+    assert 'supply = "3.3 V"' in text
     assert 'supply = "3.55 V"' not in text
+    # with the controller added to the file, it loads
+    added = text.replace('  { ref = "U3", part = "eeprom-i2c" },',
+                         '  { ref = "U3", part = "eeprom-i2c" },\n'
+                         '  { ref = "U1", part = "mcu-3v3", role = "controller" },'
+                         ).replace('part = "rtc-i2c", role = "controller"', 'part = "rtc-i2c"')
+    path.write_text(added, encoding="utf-8")
+    (bus,) = load_design(path).buses
+    assert [d.ref for d in bus.controllers] == ["U1"]
     # with the controller placed, no note
     path2 = tmp_path / "two.toml"
     assert main(["new", str(path2), "--part", "U1=mcu-3v3", "--part", "U3=eeprom-i2c"]) == 0

@@ -49,6 +49,21 @@ devices = [
 ]
 """
 
+# invented: an SPI bus whose second microcontroller is marked controller too
+SPI_TWO_CONTROLLERS = """
+[[bus]]
+id = "s"
+protocol = "spi"
+clock = "10 MHz"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "nor-flash-spi" },
+  { ref = "U3", part = "mcu-3v3", role = "controller" },
+]
+lines.sclk = { length = "10 cm", capacitance = "1 pF/cm", delay = "60 ps/cm" }
+"""
+
 # name -> (body, field, line, words the message must hold)
 BAD = {
     "unknown-part": (ONE_BUS.replace("PART", "t-targit"), "bus[0].devices[1].part", 11,
@@ -119,6 +134,27 @@ BAD = {
                               + 'lines.mosi = { length = "3 cm", capacitance = "1 pF/cm" }\n',
                               "bus[0].lines.mosi", 14,
                               ["unknown SPI signal (got 'mosi')", "mosi is named copi here"]),
+    # a second SPI controller was left out of every line without a word
+    "spi-second-controller": (SPI_TWO_CONTROLLERS, "bus[0].devices[2].role", 13,
+                              ["a second controller on an SPI bus (got 'controller')",
+                               "expected one controller per SPI bus",
+                               "U1 is the bus's controller", 'role = "peripheral"']),
+    # a target marked controller whose SCL only reads the line: nothing clocks the bus
+    "i2c-controller-reads-scl": (ONE_BUS.replace('"t-ctrl-3v3"', '"t-target"')
+                                 .replace("PART", "t-target"), "bus[0].devices[0].role", 10,
+                                 ["a controller must pull SCL low",
+                                  "t-target pin 'scl' (i2c-scl) has drive = \"input\"",
+                                  "no device on this bus can pull SCL low"]),
+    "translator-as-controller": (ONE_BUS.replace('"t-ctrl-3v3", role = "controller"',
+                                                 '"t-fet-translator", side = "a", '
+                                                 'role = "controller"')
+                                 .replace("PART", "t-ctrl-3v3"), "bus[0].devices[0].role", 10,
+                                 ["a controller must pull SCL low", "pass-transistor",
+                                  "U2 can pull SCL low"]),
+    "segment-not-joined": (SEGMENTS.replace(
+        '  { ref = "Q1", part = "t-fet-translator", side = "b" },\n', ""),
+        "bus[0].segment[1].devices", 17,
+        ["no bridging part joins this segment to the controller's", "(got 'b-2')"]),
     "empty-segment-id": (SEGMENTS.replace('[[bus.segment]]\nsupply = "1.8 V"',
                                           '[[bus.segment]]\nid = ""\nsupply = "1.8 V"'),
                          "bus[0].segment[1].id", 17, ["text shorter than 1 character"]),
@@ -424,3 +460,45 @@ def test_one_folder_written_as_library_text_gets_the_list_to_write(tmp_path):
     err = info.value
     assert (err.field, err.line) == ("library", 3)
     assert 'expected a list, e.g. ["parts"]' in err.message
+
+
+# ---------------------------------------------------------------- controllers and roles
+def test_several_controllers_stay_legal_where_the_bus_allows_them(tmp_path):
+    # invented designs: an I2C bus with two controllers (multi-controller arbitration,
+    # UM10204 §3.1.7: legal), and a GPIO line that two parts marked controller share
+    body = ONE_BUS.replace("PART", "t-ctrl-3v3").replace(
+        '{ ref = "U2", part = "t-ctrl-3v3" }',
+        '{ ref = "U2", part = "t-ctrl-3v3", role = "controller" }')
+    d = load_design(write(tmp_path, body))
+    assert [x.ref for x in d.buses[0].controllers] == ["U1", "U2"]
+    gpio = """
+[[bus]]
+id = "g"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller", pin = "reset" },
+  { ref = "U2", part = "mcu-3v3", role = "controller", pin = "reset" },
+]
+lines.reset = { length = "5 cm", capacitance = "1 pF/cm" }
+"""
+    d = load_design(write(tmp_path, gpio))
+    assert len(d.buses[0].controllers) == 2
+
+
+def test_a_second_spi_microcontroller_described_as_a_load_is_on_the_lines(tmp_path):
+    # The fix the refusal names: U3 as role = "peripheral" loads the clock line, where
+    # the second controller used to be left out (the same load capacitance as without it)
+    from pinlib.engines.dispatch import check_design
+
+    def sclk_load(body):
+        res = check_design(load_design(write(tmp_path, body)))
+        (sclk,) = [ln for ln in res.buses[0].lines if ln.signal == "sclk"]
+        return sclk.figures["load_capacitance"].value
+
+    as_load = SPI_TWO_CONTROLLERS.replace('{ ref = "U3", part = "mcu-3v3", role = "controller" }',
+                                          '{ ref = "U3", part = "mcu-3v3" }')
+    without = SPI_TWO_CONTROLLERS.replace(
+        '  { ref = "U3", part = "mcu-3v3", role = "controller" },\n', "")
+    # derived: U3's SCLK pin adds its c_in to the line the controller drives
+    assert sclk_load(as_load) > sclk_load(without)

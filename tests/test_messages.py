@@ -1584,6 +1584,50 @@ def _(env):
     return _fails(lambda e: e.design(I2C_BUS.replace(', role = "controller"', "")), env)
 
 
+@case("SPI_ONE_CONTROLLER")
+def _(env):
+    # invented: a second microcontroller marked controller beside U1
+    err = _fails(lambda e: e.design(SPI_BUS.replace(
+        '{ ref = "U7", part = "nor-flash-spi" },',
+        '{ ref = "U7", part = "nor-flash-spi" },\n'
+        '  { ref = "U8", part = "mcu-3v3", role = "controller" },')), env)
+    assert err.field == "bus[0].devices[2].role" and err.line == 18  # U8's line
+    assert "U1 is the bus's controller" in err.message
+    return err
+
+
+@case("CONTROLLER_CANNOT_DRIVE", M.CONTROLLER_CANNOT_DRIVE.format(signal="SCL"))
+def _(env):
+    # invented: the EEPROM marked controller, its SCL pin an input
+    err = _fails(lambda e: e.design(I2C_BUS.replace(', role = "controller"', "").replace(
+        '{ ref = "U2", part = "eeprom-i2c" }',
+        '{ ref = "U2", part = "eeprom-i2c", role = "controller" }')), env)
+    assert err.field == "bus[0].devices[1].role" and err.line == 17  # U2's line
+    assert "U1 can pull SCL low" in err.message
+    return err
+
+
+@case("SEGMENT_NOT_JOINED")
+def _(env):
+    # invented: a second segment that no translator joins to the first
+    body = """
+[[bus]]
+id = "b"
+protocol = "i2c"
+
+[[bus.segment]]
+supply = "3.3 V"
+devices = [{ ref = "U1", part = "mcu-3v3", role = "controller" }]
+
+[[bus.segment]]
+supply = "3.3 V"
+devices = [{ ref = "U2", part = "eeprom-i2c" }]
+"""
+    err = _fails(lambda e: e.design(body), env)
+    assert err.field == "bus[0].segment[1].devices" and err.line == 20  # its devices
+    return err
+
+
 @case("BRIDGE_NEEDS_SIDE")
 def _(env):
     return _fails(lambda e: e.design(_device("level-translator-mosfet")), env)

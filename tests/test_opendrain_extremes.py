@@ -359,7 +359,7 @@ def test_bus_capacitance_at_and_just_past_each_limit(tmp_path, protocol, mode, c
     ("100k", 725.0), ("400k", 483.3), ("1m", 145.0),
 ])
 def test_smbus_default_sink_follows_its_class(tmp_path, mode, rp_min):
-    devices = ['{ ref = "U1", part = "t-target-bare", role = "controller" }',
+    devices = ['{ ref = "U1", part = "t-controller-bare", role = "controller" }',
                '{ ref = "U2", part = "t-target-bare" }']
     res = bus_result(tmp_path, one_bus(protocol="smbus", mode=mode, devices=devices))
     assert fig(res, "rp_min") == pytest.approx(rp_min, abs=0.05)

@@ -231,6 +231,10 @@ KEY_IN_SEGMENTS = "{key} goes in the segments when a bus has segments"
 BUS_NEEDS_PULLUP_SUPPLY = "a bus needs its pull-up supply"
 SUPPLY_NOT_POSITIVE = "the supply must be positive"
 BUS_NEEDS_CONTROLLER = "a bus needs a controller"
+SPI_ONE_CONTROLLER = "a second controller on an SPI bus"
+CONTROLLER_CANNOT_DRIVE = "a controller must pull {signal} low, and this part cannot"
+SEGMENT_NOT_JOINED = ("no bridging part joins this segment to the controller's: "
+                      "nothing clocks its lines")
 BRIDGE_NEEDS_SIDE = "a bridging part names its side in each segment"
 SIDE_ONLY_FOR_BRIDGE = "only a bridging part has sides"
 # [[coupling]] tables (pinlib/model/design/coupling.py)

@@ -13,7 +13,9 @@ open-drain) and others a GPIO input of (a supervisor's ``reset`` and a microcont
 gets a GPIO bus of that one line; every other GPIO pin is listed in a comment rather
 than guessed.  The values
 written (rail, trace, clock) are placeholders a designer replaces; the file says so
-beside each one, and it loads and checks as it is.
+beside each one, and it loads and checks as it is, except where no part given drives a
+bus's clock: the first part then stands in as its controller, which the file and the
+command's note say ``pinlib check`` refuses until the part that drives it is added.
 """
 
 from __future__ import annotations
@@ -202,9 +204,12 @@ def _bus(group, members, bridges=(), notes=None) -> tuple[list[str], bool]:
     out = ["", *wrap(f"The {proto.name.upper()} bus of {refs}.", WIDTH, "# ", "")]
     if stand_in:
         clock = "SCL" if proto.open_drain else "SCLK"
+        # the file keeps every part given on its bus, the first marked the controller
+        # (a bus needs one); 'pinlib check' refuses the stand-in, which cannot clock it
         note = (f"no part given drives {clock}: {ctrl.ref} stands in as the controller "
-                f"of the {proto.name.upper()} bus until you add the real one "
-                f"(--part REF=PART)")
+                f"of the {proto.name.upper()} bus, and 'pinlib check' refuses the bus "
+                f"(nothing would clock it) until you add the part that drives "
+                f"{clock} (--part REF=PART)")
         out += wrap(f"Placeholder: {note}.", WIDTH, "# ", "")
         if notes is not None:
             notes.append(note)
@@ -312,7 +317,8 @@ def starter_text(title: str, placed: list[tuple[Placement, object]],
         ``--library`` folder would be unknown when the design is next read.
     notes : list of str, optional
         Filled with what the reader should know about the file written: a part that
-        stands in as a bus's controller, since no part given drives its clock.
+        stands in as a bus's controller, since no part given drives its clock (the
+        design loader refuses it until the part that does is added).
 
     Returns
     -------

@@ -14,6 +14,7 @@ import math
 
 import numpy as np
 
+from pinlib.core.labels import and_list
 from pinlib.engines.opendrain.arith import BY_PART, far_drivers
 from pinlib.engines.opendrain.batchfigures import one
 from pinlib.engines.opendrain.bridges import overdrive
@@ -158,7 +159,7 @@ def line(w: Words, ln: LineInputs) -> None:
     if local or offsets:
         _sink(w, ln, far)
     elif not behind:
-        grp.notes.append(f"{up}: no device on this segment drives the line low; levels not checked")
+        grp.notes.append(_pulled_low_afar(w, ln.signal))
     if not (local or behind) and offsets:
         grp.notes.append(f"{up} is driven low on this segment only by the static-offset side "
                          f"of {', '.join(d.tap.label for d in offsets)}: see bridge-offset")
@@ -208,6 +209,30 @@ def _fastest_rise(w: Words, ln: LineInputs, rp_lo: float, defin: str) -> None:
     if chk.status == "fail":
         _failed(chk, "a larger pull-up, inside its window")
     w.grp.add(chk)
+
+
+def _pulled_low_afar(w: Words, signal: str) -> str:
+    """The note of a line that no driver on its segment, nor one across a single pass
+    transistor, pulls low.  Every segment is joined to the controller's (the loader
+    refuses one that is not), so the line is pulled low from further away: through two
+    or more bridging parts in a row (a pass transistor beyond another, or beyond a
+    repeater), which the engine does not work out; the note names the devices."""
+    up, start = signal.upper(), w.seg_in.index
+    reached, queue = {start}, [start]
+    while queue:  # a walk over the segments joined by bridging parts, each taken once
+        i = queue.pop()
+        for link in w.ctx.links[i]:
+            if link.other not in reached:
+                reached.add(link.other)
+                queue.append(link.other)
+    names = sorted({d.tap.label for i in reached if i != start
+                    for d in w.ctx.collected[i].lines[signal].drivers
+                    if not d.tap.dev.is_bridge})
+    head = (f"{up}: pulled low only from beyond the segments next to this one, through "
+            f"two or more bridging parts in a row ({and_list(names)})" if names else
+            f"{up}: no device on this segment drives the line low")
+    return (f"{head}; its low level, sink current and fall time are not worked out "
+            "here")
 
 
 #: A rise the pins' leakage lengthens by at least this much against the specification's

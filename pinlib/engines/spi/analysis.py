@@ -228,11 +228,8 @@ def line_setup(bus: Bus, design: Design,
     analyses (by signal, in its order; of the line ``only`` alone when given), the
     controller, the peripherals and the bridging parts (devices of ``bus``), and the
     notes of what it skips. [1]"""
-    controllers = bus.controllers
-    controller = controllers[0]
+    controller = bus.controllers[0]  # the loader admits one on an SPI bus
     notes = []
-    if len(controllers) > 1:
-        notes.append(f"more than one controller: {controller.ref} is taken as the one driving")
     peripherals = [d for d in bus.peripherals if not is_bridge(d)]
     bridges = [d for d in bus.peripherals if is_bridge(d)]
     warn = design.warn_margin

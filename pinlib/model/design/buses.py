@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from pinlib.core import messages as M
 from pinlib.core import protocols
-from pinlib.core.labels import plural_s
+from pinlib.core.labels import and_list, plural_s
 from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_of
@@ -33,7 +33,9 @@ def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bu
                   hint="mark one device role = \"controller\"")
     _no_device_pin(all_devices, err)
     _check_open_drain_pins(rb, segments, err)
+    _check_controllers_drive(rb, all_devices, err)
     _check_bridges(segments, err)
+    _check_joined(segments, err)
     return Bus(rb.id, rb.protocol, mode, rb.clock, segments[0].supply,
                segments[0].supply_tolerance, tuple(segments), tuple(all_devices), {},
                rb.spi_mode, rb.title, segments[0].capacitance_tolerance,
@@ -117,6 +119,50 @@ def _check_open_drain_pins(rb: RawBus, segments: list[Segment], err) -> None:
                               hint="an I2C/SMBus device needs SDA and SCL pins")
 
 
+def _pulls_low(d: Device, fn: str) -> bool:
+    """Whether device ``d``'s pin of function ``fn`` can pull its line low: an output
+    (open-drain, or push-pull), not an input, on any part but a pass-transistor
+    translator (which passes a low from one side to the other and drives neither)."""
+    got = d.part.pin_for(fn, d.side)
+    bridge = d.part.bridge
+    return (got is not None and got[1].drive != "input"
+            and not (bridge is not None and bridge.kind == "mosfet"))
+
+
+def _check_controllers_drive(rb: RawBus, devices: list[Device], err) -> None:
+    """Every controller of an open-drain bus can pull SCL and SDA low: it makes the
+    clock, the start and the address, so a part whose pin on either line only reads it
+    cannot be one (nothing would clock the bus).  Refused at the device's ``role``; the
+    hint names the devices that can pull the line low, or says that none can.  A
+    segment reached through a bridging part is driven through it (the engine works out
+    how well)."""
+    proto = protocols.protocol(rb.protocol)
+    for d in devices:
+        if not d.is_controller:
+            continue
+        for sig in ("scl", "sda"):
+            fn = proto.function(sig)
+            if _pulls_low(d, fn):
+                continue
+            name, pin = d.part.pin_for(fn, d.side)  # every part has it (checked before)
+            bridge = d.part.bridge
+            why = (f"{d.part_id} is a pass-transistor translator: it drives neither side"
+                   if bridge is not None and bridge.kind == "mosfet" else
+                   f"{d.part_id} pin '{name}' ({fn}) has drive = \"{pin.drive}\": it only "
+                   "reads the line")
+            able = sorted({o.ref for o in devices if o.ref != d.ref and not o.is_bridge
+                           and _pulls_low(o, fn)})
+            up = sig.upper()
+            whom = (f"{and_list(able)} can pull {up} low" if able else
+                    f"no device on this bus can pull {up} low: add the part that "
+                    "controls the bus (a microcontroller, a host adapter)")
+            raise err(M.CONTROLLER_CANNOT_DRIVE.format(signal=up), d.loc + ("role",),
+                      value=d.role,
+                      expected=f'role = "peripheral" here, and role = "controller" on a '
+                               f"device whose {up} pin drives the line",
+                      hint=f"{why}; {whom}")
+
+
 def _check_bridges(segments: list[Segment], err) -> None:
     """Every bridging part sits in two segments, one on each side."""
     bridges: dict[str, list[str]] = {}
@@ -129,6 +175,33 @@ def _check_bridges(segments: list[Segment], err) -> None:
             loc = next(d.loc for s in segments for d in s.devices if d.ref == ref)
             raise err(M.BRIDGE_IN_TWO_SEGMENTS, loc + ("ref",), value=ref,
                       hint=f"found side{plural_s(len(sides))}: {', '.join(sides)}")
+
+
+def _check_joined(segments: list[Segment], err) -> None:
+    """Every segment is joined to the controller's through bridging parts (the first
+    controller's segment, and from there each segment sharing a bridging part with one
+    reached): a segment joined to none is cut off from the controller, and its lines
+    have no clock.  Refused at the first such segment's ``devices``."""
+    if len(segments) < 2:
+        return
+    start = next(i for i, s in enumerate(segments) if any(d.is_controller for d in s.devices))
+    bridges = [{d.ref for d in s.devices if d.is_bridge} for s in segments]
+    reached, queue = {start}, [start]
+    while queue:  # a walk over the segments, each taken once
+        i = queue.pop()
+        for j, refs in enumerate(bridges):
+            if j not in reached and refs & bridges[i]:
+                reached.add(j)
+                queue.append(j)
+    for j, seg in enumerate(segments):
+        if j not in reached:
+            joined = [segments[k].id for k in sorted(reached)]
+            raise err(M.SEGMENT_NOT_JOINED, seg.loc + ("devices",), value=seg.id,
+                      expected="a bridging part in this segment and in one joined to "
+                               f"the controller's ({and_list(joined)})",
+                      hint="list the translator or repeater in both segments (side = "
+                           "\"a\" in one, \"b\" in the other), or give these devices a "
+                           "bus of their own")
 
 
 def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
@@ -144,6 +217,8 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
     if not any(d.is_controller for d in devices):
         raise err(M.BUS_NEEDS_CONTROLLER, bloc + ("devices",),
                   hint="mark one device role = \"controller\"")
+    if rb.protocol == "spi":
+        _one_spi_controller(devices, err)
     if rb.protocol == "gpio":
         _check_gpio_pins(devices, tuple(rb.lines), err)
     else:
@@ -189,6 +264,24 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
     return Bus(rb.id, rb.protocol, None, rb.clock, rb.supply, rb.supply_tolerance or 0.0, (),
                devices, lines, rb.spi_mode, rb.title, rb.capacitance_tolerance or 0.0,
                rb.length_tolerance or 0.0, bloc)
+
+
+def _one_spi_controller(devices, err) -> None:
+    """An SPI bus has one controller: it alone drives SCLK, COPI and CS, and the engine
+    solves each line from it.  A second device marked ``role = "controller"`` is refused
+    at its ``role`` (left in, it would be on no line as a driver and in no timing path:
+    left out without a word).  Several controllers on an I2C or SMBus bus are legal
+    (arbitration), and on a GPIO bus the drivers are the pins' own drives."""
+    ctrls = [d for d in devices if d.is_controller]
+    if len(ctrls) < 2:
+        return
+    first, second = ctrls[0], ctrls[1]
+    raise err(M.SPI_ONE_CONTROLLER, second.loc + ("role",), value=second.role,
+              expected="one controller per SPI bus",
+              hint=f"{first.ref} is the bus's controller (field "
+                   f"'{dotted_path(first.loc + ('role',))}'); describe {second.ref}'s pins "
+                   "on this bus as a load (role = \"peripheral\"), or give it an SPI bus "
+                   "of its own")
 
 
 def _line_pullup_key(trace) -> str | None:
