@@ -124,6 +124,86 @@ BAD = {
                          "bus[0].segment[1].id", 17, ["text shorter than 1 character"]),
 }
 
+# ---------------------------------------------------------------- keys a protocol does not read
+# invented test designs: an I2C and an SPI bus of built-in parts over one microstrip.  Each
+# case gives a key the bus's protocol does not read (taken and ignored before, the result
+# unchanged).
+GEOMETRY = """
+[board.geometry.top]
+kind = "microstrip"
+width = "0.15 mm"
+height = "0.1 mm"
+er = 4.3
+"""  # lines 5 to 9
+
+I2C = GEOMETRY + """
+[[bus]]
+id = "i2c0"
+protocol = "i2c"
+supply = "3.3 V"
+trace = { length = "25 cm", geometry = "top" }
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "eeprom-i2c" },
+]
+"""  # trace at line 15, U2 at line 18
+
+SPI = GEOMETRY + """
+[[bus]]
+id = "spi0"
+protocol = "spi"
+clock = "10 MHz"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "nor-flash-spi" },
+]
+lines.sclk = { length = "5 cm", geometry = "top" }
+"""  # clock at line 14, U2 at line 18, lines.sclk at line 20
+
+_I2C_TRACE = 'trace = { length = "25 cm", geometry = "top" }'
+_SPI_U2 = '{ ref = "U2", part = "nor-flash-spi" }'
+_SCLK = 'lines.sclk = { length = "5 cm", geometry = "top" }'
+
+BAD.update({
+    "i2c-trace-series-resistor": (
+        I2C.replace(_I2C_TRACE, _I2C_TRACE[:-2] + ', series_resistor = "10 kΩ" }'),
+        "bus[0].trace.series_resistor", 15,
+        ["only an SPI or GPIO line takes series_resistor (got '10 kΩ')",
+         "belongs on a device: devices[N].series_resistor"]),
+    "i2c-trace-extra-capacitance": (
+        I2C.replace(_I2C_TRACE, _I2C_TRACE[:-2] + ', extra_capacitance = "10 nF" }'),
+        "bus[0].trace.extra_capacitance", 15,
+        ["only an SPI or GPIO line takes extra_capacitance (got '10 nF')",
+         "belongs beside its trace: the bus's (or segment's) extra_capacitance"]),
+    "segment-trace-extra-capacitance": (
+        SEGMENTS.replace('supply = "1.8 V"\n', 'supply = "1.8 V"\ntrace = { length = "2 cm", '
+                         'capacitance = "1 pF/cm", extra_capacitance = "5 pF" }\n'),
+        "bus[0].segment[1].trace.extra_capacitance", 18,
+        ["only an SPI or GPIO line takes extra_capacitance"]),
+    "i2c-spi-mode": (I2C.replace('protocol = "i2c"', 'protocol = "i2c"\nspi_mode = 3'),
+                     "bus[0].spi_mode", 14, ["only an SPI bus takes an spi_mode (got 3)"]),
+    "spi-bus-trace": (SPI + 'trace = { length = "100 m", geometry = "top" }\n',
+                      "bus[0].trace", 21,
+                      ["a spi bus has no trace",
+                       'lines.<signal> = { length = "10 cm", geometry = "NAME" }']),
+    "spi-bus-extra-capacitance": (
+        SPI + 'extra_capacitance = "1 µF"\n', "bus[0].extra_capacitance", 21,
+        ["a spi bus has no extra_capacitance (got '1 µF')",
+         "extra_capacitance of an SPI or GPIO bus belongs on a line: "
+         "lines.<signal>.extra_capacitance"]),
+    "spi-device-series-resistor": (
+        SPI.replace(_SPI_U2, _SPI_U2[:-2] + ', series_resistor = "33 Ω" }'),
+        "bus[0].devices[1].series_resistor", 18,
+        ["only a device on an I2C or SMBus bus takes series_resistor (got '33 Ω')",
+         "lines.<signal>.series_resistor"]),
+    "spi-device-switched": (
+        SPI.replace(_SPI_U2, _SPI_U2[:-2] + ", switched = true }"),
+        "bus[0].devices[1].switched", 18,
+        ["only a device on an I2C or SMBus bus takes switched (got true)",
+         "the power-off check is made on I2C and SMBus buses only"]),
+})
+
 
 def write(tmp_path, body: str) -> Path:
     path = tmp_path / "bad.toml"
@@ -164,6 +244,29 @@ def test_an_empty_title_is_refused(tmp_path, capsys):
     assert main(["check", str(path)]) == 2
     err = capsys.readouterr().err
     assert f"{path}:2, field 'title': text shorter than 1 character" in err
+
+
+def test_the_keys_a_protocol_reads_still_load(tmp_path):
+    # invented test designs: each refused key written where its protocol reads it
+    i2c = I2C.replace('supply = "3.3 V"', 'supply = "3.3 V"\nextra_capacitance = "10 pF"')
+    i2c = i2c.replace('part = "eeprom-i2c" }', 'part = "eeprom-i2c", series_resistor = "100 Ω", '
+                                              "switched = true }")
+    bus = load_design(write(tmp_path, i2c)).bus("i2c0")
+    assert bus.segments[0].extra_capacitance == pytest.approx(10e-12)
+    assert [(d.series_resistor, d.switched) for d in bus.devices] == [
+        (None, False), (pytest.approx(100.0), True)]
+    spi = SPI.replace('clock = "10 MHz"', 'clock = "10 MHz"\nspi_mode = 3').replace(
+        _SCLK, 'lines.sclk = { length = "5 cm", geometry = "top", series_resistor = "33 Ω", '
+               'extra_capacitance = "4 pF" }')
+    bus = load_design(write(tmp_path, spi)).bus("spi0")
+    assert bus.spi_mode == 3
+    sclk = bus.lines["sclk"]
+    assert (sclk.series_resistor, sclk.extra_capacitance) == (pytest.approx(33.0),
+                                                              pytest.approx(4e-12))
+    # and their defaults where a line leaves them out
+    bare = load_design(write(tmp_path, SPI)).bus("spi0")
+    assert (bare.spi_mode, bare.lines["sclk"].series_resistor,
+            bare.lines["sclk"].extra_capacitance) == (0, "none", 0.0)
 
 
 def test_missing_file_exits_2(tmp_path, capsys):

@@ -70,7 +70,7 @@ class _Resolver:
         if d.supply is not None and not d.supply > 0:
             raise err(M.SUPPLY_NOT_POSITIVE, loc + ("supply",), value=format_si(d.supply, "V"))
         role = "peripheral" if d.role == "target" else d.role
-        return Device(d.ref, part_id, part, role, d.supply, d.switched, d.series_resistor,
+        return Device(d.ref, part_id, part, role, d.supply, bool(d.switched), d.series_resistor,
                       d.side, d.internal_pullups, d.pin, d.capacitance_tolerance, loc)
 
     def too_many_sections(self, count, loc):
