@@ -210,6 +210,12 @@ def test_every_shipped_and_test_design_is_valid_under_the_schema(path):
     ({"bus": [{"id": "b", "protocol": "smbus", "spi_mode": 1}]}, ["bus", 0, "spi_mode"]),
     ({"bus": [{"id": "b", "protocol": "spi", "devices": [
         {"ref": "U1", "part": "p", "switched": True}]}]}, ["bus", 0, "devices", 0, "switched"]),
+    ({"board": {"geometry": {"g": {"kind": "microstrip", "width": "0.1 mm", "er": 4.3,
+                                   "method": "ipc2141"}}}},
+     ["board", "geometry", "g", "method"]),
+    ({"board": {"geometry": {"g": {"kind": "stripline", "width": "0.1 mm", "er": 4.3,
+                                   "method": "hammerstad-jensen"}}}},
+     ["board", "geometry", "g", "method"]),
 ])
 def test_the_design_schema_refuses_what_the_loader_refuses(change, where):
     data = {"format": "pinlib.design/1", "title": "t", **change}

@@ -127,7 +127,7 @@ BAD = {
 # ---------------------------------------------------------------- keys a protocol does not read
 # invented test designs: an I2C and an SPI bus of built-in parts over one microstrip.  Each
 # case gives a key the bus's protocol does not read (taken and ignored before, the result
-# unchanged).
+# unchanged), or a value the engine refused later at the bus's header line.
 GEOMETRY = """
 [board.geometry.top]
 kind = "microstrip"
@@ -202,6 +202,29 @@ BAD.update({
         "bus[0].devices[1].switched", 18,
         ["only a device on an I2C or SMBus bus takes switched (got true)",
          "the power-off check is made on I2C and SMBus buses only"]),
+    # Z0 = delay / capacitance: the engine refused it at the bus's header line, naming a
+    # parameter 'c' of its own
+    "zero-capacitance-with-delay": (
+        SPI + 'lines.cs = { length = "10 cm", capacitance = "0 pF/cm", delay = "60 ps/cm" }\n',
+        "bus[0].lines.cs.capacitance", 21,
+        ["a stretch with a delay per length needs a capacitance above 0",
+         "expected more than 0 and at most", "an infinite one"]),
+    "zero-capacitance-with-delay-in-route": (
+        SPI.replace(_SCLK, 'lines.sclk = { route = [\n  { from = "U1", to = "U2", '
+                           'length = "5 cm", capacitance = "0 pF/cm", delay = "6 ns/m" },\n]}'),
+        "bus[0].lines.sclk.route[0].capacitance", 21,
+        ["needs a capacitance above 0"]),
+    # the engine refused it when the bus was evaluated, at the bus's header line
+    "unknown-method": (GEOMETRY.replace("er = 4.3", 'er = 4.3\nmethod = "ipc2141"')
+                       + SPI[len(GEOMETRY):], "board.geometry.top.method", 10,
+                       ["unknown microstrip method (got 'ipc2141')",
+                        "expected one of 'hammerstad-jensen' (the default), 'ipc-2141'"]),
+    "unknown-stripline-method": (
+        GEOMETRY.replace("microstrip", "stripline").replace(
+            "er = 4.3", 'er = 4.3\nmethod = "hammerstad-jensen"') + SPI[len(GEOMETRY):],
+        "board.geometry.top.method", 10,
+        ["unknown stripline method (got 'hammerstad-jensen')",
+         "'wheeler' (the default), 'cohn', 'ipc-2141'"]),
 })
 
 
@@ -244,6 +267,15 @@ def test_an_empty_title_is_refused(tmp_path, capsys):
     assert main(["check", str(path)]) == 2
     err = capsys.readouterr().err
     assert f"{path}:2, field 'title': text shorter than 1 character" in err
+
+
+def test_a_capacitance_of_zero_without_a_delay_is_still_taken(tmp_path):
+    # invented test design: a stretch that loads nothing (no delay: a lumped 0 pF) has no
+    # impedance to be infinite; only beside a delay is a capacitance of 0 refused
+    path = write(tmp_path, SPI.replace(_SCLK, 'lines.sclk = { length = "5 cm", '
+                                             'capacitance = "0 pF/cm" }'))
+    line = load_design(path).bus("spi0").lines["sclk"]
+    assert [s.capacitance for s in line.sections] == [0.0]
 
 
 def test_the_keys_a_protocol_reads_still_load(tmp_path):

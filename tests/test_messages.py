@@ -1825,6 +1825,22 @@ def _(env):
     return str(_spi_device_key(env, 'series_resistor = "33 Ω"'))
 
 
+def _zero_c_with_delay(env):
+    return _fails(lambda e: e.design(SPI_BUS.replace(
+        'lines.sclk = { length = "3 cm", geometry = "g" }',
+        'lines.sclk = { length = "3 cm", capacitance = "0 pF/cm", delay = "60 ps/cm" }')), env)
+
+
+@case("CAPACITANCE_ZERO_WITH_DELAY")
+def _(env):
+    return _zero_c_with_delay(env)
+
+
+@case("IMPEDANCE_IS_DELAY_OVER_C")
+def _(env):
+    return str(_zero_c_with_delay(env))
+
+
 @case("LINE_PULLUP_TOLERANCE_ALONE")
 def _(env):
     return _fails(lambda e: e.design("""

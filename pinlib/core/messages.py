@@ -267,6 +267,9 @@ SERIES_RESISTOR_ON_LINE = ("series_resistor of an SPI or GPIO bus belongs on a l
                            "driver: lines.<signal>.series_resistor")
 SWITCHED_NOT_CHECKED = ("the power-off check is made on I2C and SMBus buses only; leave "
                         "switched out")
+CAPACITANCE_ZERO_WITH_DELAY = "a stretch with a delay per length needs a capacitance above 0"
+IMPEDANCE_IS_DELAY_OVER_C = ("its impedance is delay / capacitance: a line of no capacitance "
+                             "and a delay would have an infinite one")
 LINE_PULLUP_NOT_GPIO = "only a GPIO or SPI line takes a pullup"
 LINE_PULLUP_TOLERANCE_ALONE = "a pullup_tolerance needs the line's pullup"
 DEVICE_PIN_NOT_GPIO = "only a device on a GPIO bus takes a pin"

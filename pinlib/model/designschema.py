@@ -72,10 +72,12 @@ def _refused(*keys: str) -> dict:
 
 
 def _by_kind(defs: dict) -> None:
-    """The keys the loader refuses by a bus's protocol (:mod:`pinlib.model.design.buses`,
-    ``build``): the records are shared by every protocol, so these are conditions on the
-    shared tables."""
+    """The keys the loader refuses by a bus's protocol and the methods it takes by a
+    geometry's kind (:mod:`pinlib.model.design.buses`, ``build``, ``resolve``): the
+    records are shared by every protocol, so these are conditions on the shared
+    tables."""
     from pinlib.core import protocols
+    from pinlib.physics import lines as tl
 
     # an open-drain trace: none of a push-pull line's own keys
     od_trace = _refused("route", "series_resistor", "extra_capacitance", "pullup",
@@ -91,6 +93,10 @@ def _by_kind(defs: dict) -> None:
         _when("protocol", protocols.PUSH_PULL_PROTOCOLS, push_pull),
         _when("protocol", [p for p in protocols.NAMES if p != "spi"], _refused("spi_mode")),
     ]
+    defs["RawGeometry"]["allOf"] = [
+        _when("kind", [kind], {"properties": {"method": {"enum": list(methods)}}})
+        for kind, methods in (("microstrip", tl.MICROSTRIP_METHODS),
+                              ("stripline", tl.STRIPLINE_METHODS))]
 
 
 def design_json_schema() -> dict:
