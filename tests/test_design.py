@@ -225,6 +225,15 @@ BAD.update({
         "board.geometry.top.method", 10,
         ["unknown stripline method (got 'hammerstad-jensen')",
          "'wheeler' (the default), 'cohn', 'ipc-2141'"]),
+    # a table's place written as a value: the form it takes
+    "trace-as-a-length": (I2C.replace(_I2C_TRACE, 'trace = "25 cm"'), "bus[0].trace", 15,
+                          ["not a table (got '25 cm')",
+                           'expected { length = "25 cm", geometry = "NAME" }']),
+    "line-as-a-length": (SPI.replace(_SCLK, 'lines.sclk = "5 cm"'), "bus[0].lines.sclk", 20,
+                         ['expected { length = "5 cm", geometry = "NAME" }']),
+    "device-as-a-name": (I2C.replace('  { ref = "U2", part = "eeprom-i2c" },', '  "U2",'),
+                         "bus[0].devices[1]", 18,
+                         ['not a table (got \'U2\')', 'expected { ref = "U2", part = "PART-ID" }']),
 })
 
 
@@ -267,6 +276,25 @@ def test_an_empty_title_is_refused(tmp_path, capsys):
     assert main(["check", str(path)]) == 2
     err = capsys.readouterr().err
     assert f"{path}:2, field 'title': text shorter than 1 character" in err
+
+
+@pytest.mark.parametrize(("key", "written"), [
+    ("title", 'expected title = "'), ("format", 'expected format = "pinlib.design/1"')])
+def test_a_missing_title_or_format_is_named_at_the_top_of_the_file(tmp_path, capsys, key,
+                                                                       written):
+    # invented test design: the file lacks one of its two required keys; the error had no
+    # line, and for the title no word of what to write
+    path = write(tmp_path, ONE_BUS.replace("PART", "t-target"))
+    text = path.read_text(encoding="utf-8")
+    path.write_text("\n".join(ln for ln in text.splitlines() if not ln.startswith(key + " ")),
+                    encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    err = info.value
+    assert (err.file, err.line, err.field) == (str(path), 1, key)
+    assert written in err.message
+    assert main(["check", str(path)]) == 2
+    assert f"{path}:1, field '{key}'" in capsys.readouterr().err
 
 
 def test_a_capacitance_of_zero_without_a_delay_is_still_taken(tmp_path):
