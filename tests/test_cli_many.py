@@ -211,12 +211,48 @@ def test_every_shipped_and_test_design_is_valid_under_the_schema(path):
     ({"bus": [{"id": "b", "protocol": "i2c", "supply": "3.3 volts!"}]}, ["bus", 0, "supply"]),
     ({"bus": [{"id": "b", "protocol": "i2c", "pullup": "sometimes"}]}, ["bus", 0, "pullup"]),
     ({"colour": "red"}, []),                                    # an unknown key
+    # keys a bus's protocol does not read (invented test designs)
+    ({"bus": [{"id": "b", "protocol": "spi", "extra_capacitance": "1 µF"}]},
+     ["bus", 0, "extra_capacitance"]),
+    ({"bus": [{"id": "b", "protocol": "gpio", "trace": {"length": "5 cm"}}]},
+     ["bus", 0, "trace"]),
+    ({"bus": [{"id": "b", "protocol": "i2c", "trace": {"length": "5 cm",
+                                                        "series_resistor": "10 Ω"}}]},
+     ["bus", 0, "trace", "series_resistor"]),
+    ({"bus": [{"id": "b", "protocol": "i2c", "segment": [
+        {"trace": {"length": "5 cm", "extra_capacitance": "10 pF"}}]}]},
+     ["bus", 0, "segment", 0, "trace", "extra_capacitance"]),
+    ({"bus": [{"id": "b", "protocol": "smbus", "spi_mode": 1}]}, ["bus", 0, "spi_mode"]),
+    ({"bus": [{"id": "b", "protocol": "spi", "devices": [
+        {"ref": "U1", "part": "p", "switched": True}]}]}, ["bus", 0, "devices", 0, "switched"]),
+    ({"board": {"geometry": {"g": {"kind": "microstrip", "width": "0.1 mm", "er": 4.3,
+                                   "method": "ipc2141"}}}},
+     ["board", "geometry", "g", "method"]),
+    ({"board": {"geometry": {"g": {"kind": "stripline", "width": "0.1 mm", "er": 4.3,
+                                   "method": "hammerstad-jensen"}}}},
+     ["board", "geometry", "g", "method"]),
 ])
 def test_the_design_schema_refuses_what_the_loader_refuses(change, where):
     data = {"format": "pinlib.design/1", "title": "t", **change}
     errors = list(_validator("design").iter_errors(data))
     assert errors
     assert where in [list(e.absolute_path) for e in errors]
+
+
+def test_the_design_schema_takes_each_key_where_its_protocol_reads_it():
+    # invented test designs: the conditions by protocol refuse nothing the loader takes
+    data = {"format": "pinlib.design/1", "title": "t", "board": {"geometry": {"g": {
+        "kind": "stripline", "width": "0.1 mm", "spacing": "0.5 mm", "er": 4.3,
+        "method": "cohn"}}}, "bus": [
+        {"id": "a", "protocol": "i2c", "extra_capacitance": "10 pF",
+         "trace": {"length": "5 cm", "geometry": "g"},
+         "devices": [{"ref": "U1", "part": "p", "series_resistor": "100 Ω",
+                      "switched": True}]},
+        {"id": "b", "protocol": "spi", "spi_mode": 3, "clock": "1 MHz",
+         "lines": {"sclk": {"length": "5 cm", "geometry": "g", "series_resistor": "auto",
+                            "extra_capacitance": "4 pF", "pullup": "10 kΩ"}}}]}
+    errors = [f"{list(e.path)}: {e.message}" for e in _validator("design").iter_errors(data)]
+    assert not errors, errors
 
 
 def test_the_design_schema_describes_a_route_and_bounds_it_as_the_loader_does():

@@ -160,6 +160,118 @@ BAD = {
                          "bus[0].segment[1].id", 17, ["text shorter than 1 character"]),
 }
 
+# ---------------------------------------------------------------- keys a protocol does not read
+# invented test designs: an I2C and an SPI bus of built-in parts over one microstrip.  Each
+# case gives a key the bus's protocol does not read (taken and ignored before, the result
+# unchanged), or a value the engine refused later at the bus's header line.
+GEOMETRY = """
+[board.geometry.top]
+kind = "microstrip"
+width = "0.15 mm"
+height = "0.1 mm"
+er = 4.3
+"""  # lines 5 to 9
+
+I2C = GEOMETRY + """
+[[bus]]
+id = "i2c0"
+protocol = "i2c"
+supply = "3.3 V"
+trace = { length = "25 cm", geometry = "top" }
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "eeprom-i2c" },
+]
+"""  # trace at line 15, U2 at line 18
+
+SPI = GEOMETRY + """
+[[bus]]
+id = "spi0"
+protocol = "spi"
+clock = "10 MHz"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "nor-flash-spi" },
+]
+lines.sclk = { length = "5 cm", geometry = "top" }
+"""  # clock at line 14, U2 at line 18, lines.sclk at line 20
+
+_I2C_TRACE = 'trace = { length = "25 cm", geometry = "top" }'
+_SPI_U2 = '{ ref = "U2", part = "nor-flash-spi" }'
+_SCLK = 'lines.sclk = { length = "5 cm", geometry = "top" }'
+
+BAD.update({
+    "i2c-trace-series-resistor": (
+        I2C.replace(_I2C_TRACE, _I2C_TRACE[:-2] + ', series_resistor = "10 kΩ" }'),
+        "bus[0].trace.series_resistor", 15,
+        ["only an SPI or GPIO line takes series_resistor (got '10 kΩ')",
+         "belongs on a device: devices[N].series_resistor"]),
+    "i2c-trace-extra-capacitance": (
+        I2C.replace(_I2C_TRACE, _I2C_TRACE[:-2] + ', extra_capacitance = "10 nF" }'),
+        "bus[0].trace.extra_capacitance", 15,
+        ["only an SPI or GPIO line takes extra_capacitance (got '10 nF')",
+         "belongs beside its trace: the bus's (or segment's) extra_capacitance"]),
+    "segment-trace-extra-capacitance": (
+        SEGMENTS.replace('supply = "1.8 V"\n', 'supply = "1.8 V"\ntrace = { length = "2 cm", '
+                         'capacitance = "1 pF/cm", extra_capacitance = "5 pF" }\n'),
+        "bus[0].segment[1].trace.extra_capacitance", 18,
+        ["only an SPI or GPIO line takes extra_capacitance"]),
+    "i2c-spi-mode": (I2C.replace('protocol = "i2c"', 'protocol = "i2c"\nspi_mode = 3'),
+                     "bus[0].spi_mode", 14, ["only an SPI bus takes an spi_mode (got 3)"]),
+    "spi-bus-trace": (SPI + 'trace = { length = "100 m", geometry = "top" }\n',
+                      "bus[0].trace", 21,
+                      ["a spi bus has no trace",
+                       'lines.<signal> = { length = "10 cm", geometry = "NAME" }']),
+    "spi-bus-extra-capacitance": (
+        SPI + 'extra_capacitance = "1 µF"\n', "bus[0].extra_capacitance", 21,
+        ["a spi bus has no extra_capacitance (got '1 µF')",
+         "extra_capacitance of an SPI or GPIO bus belongs on a line: "
+         "lines.<signal>.extra_capacitance"]),
+    "spi-device-series-resistor": (
+        SPI.replace(_SPI_U2, _SPI_U2[:-2] + ', series_resistor = "33 Ω" }'),
+        "bus[0].devices[1].series_resistor", 18,
+        ["only a device on an I2C or SMBus bus takes series_resistor (got '33 Ω')",
+         "lines.<signal>.series_resistor"]),
+    "spi-device-switched": (
+        SPI.replace(_SPI_U2, _SPI_U2[:-2] + ", switched = true }"),
+        "bus[0].devices[1].switched", 18,
+        ["only a device on an I2C or SMBus bus takes switched (got true)",
+         "the power-off check is made on I2C and SMBus buses only"]),
+    # Z0 = delay / capacitance: the engine refused it at the bus's header line, naming a
+    # parameter 'c' of its own
+    "zero-capacitance-with-delay": (
+        SPI + 'lines.cs = { length = "10 cm", capacitance = "0 pF/cm", delay = "60 ps/cm" }\n',
+        "bus[0].lines.cs.capacitance", 21,
+        ["a stretch with a delay per length needs a capacitance above 0",
+         "expected more than 0 and at most", "an infinite one"]),
+    "zero-capacitance-with-delay-in-route": (
+        SPI.replace(_SCLK, 'lines.sclk = { route = [\n  { from = "U1", to = "U2", '
+                           'length = "5 cm", capacitance = "0 pF/cm", delay = "6 ns/m" },\n]}'),
+        "bus[0].lines.sclk.route[0].capacitance", 21,
+        ["needs a capacitance above 0"]),
+    # the engine refused it when the bus was evaluated, at the bus's header line
+    "unknown-method": (GEOMETRY.replace("er = 4.3", 'er = 4.3\nmethod = "ipc2141"')
+                       + SPI[len(GEOMETRY):], "board.geometry.top.method", 10,
+                       ["unknown microstrip method (got 'ipc2141')",
+                        "expected one of 'hammerstad-jensen' (the default), 'ipc-2141'"]),
+    "unknown-stripline-method": (
+        GEOMETRY.replace("microstrip", "stripline").replace(
+            "er = 4.3", 'er = 4.3\nmethod = "hammerstad-jensen"') + SPI[len(GEOMETRY):],
+        "board.geometry.top.method", 10,
+        ["unknown stripline method (got 'hammerstad-jensen')",
+         "'wheeler' (the default), 'cohn', 'ipc-2141'"]),
+    # a table's place written as a value: the form it takes
+    "trace-as-a-length": (I2C.replace(_I2C_TRACE, 'trace = "25 cm"'), "bus[0].trace", 15,
+                          ["not a table (got '25 cm')",
+                           'expected { length = "25 cm", geometry = "NAME" }']),
+    "line-as-a-length": (SPI.replace(_SCLK, 'lines.sclk = "5 cm"'), "bus[0].lines.sclk", 20,
+                         ['expected { length = "5 cm", geometry = "NAME" }']),
+    "device-as-a-name": (I2C.replace('  { ref = "U2", part = "eeprom-i2c" },', '  "U2",'),
+                         "bus[0].devices[1]", 18,
+                         ['not a table (got \'U2\')', 'expected { ref = "U2", part = "PART-ID" }']),
+})
+
 
 def write(tmp_path, body: str) -> Path:
     path = tmp_path / "bad.toml"
@@ -200,6 +312,57 @@ def test_an_empty_title_is_refused(tmp_path, capsys):
     assert main(["check", str(path)]) == 2
     err = capsys.readouterr().err
     assert f"{path}:2, field 'title': text shorter than 1 character" in err
+
+
+@pytest.mark.parametrize(("key", "written"), [
+    ("title", 'expected title = "'), ("format", 'expected format = "pinlib.design/1"')])
+def test_a_missing_title_or_format_is_named_at_the_top_of_the_file(tmp_path, capsys, key,
+                                                                       written):
+    # invented test design: the file lacks one of its two required keys; the error had no
+    # line, and for the title no word of what to write
+    path = write(tmp_path, ONE_BUS.replace("PART", "t-target"))
+    text = path.read_text(encoding="utf-8")
+    path.write_text("\n".join(ln for ln in text.splitlines() if not ln.startswith(key + " ")),
+                    encoding="utf-8")
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    err = info.value
+    assert (err.file, err.line, err.field) == (str(path), 1, key)
+    assert written in err.message
+    assert main(["check", str(path)]) == 2
+    assert f"{path}:1, field '{key}'" in capsys.readouterr().err
+
+
+def test_a_capacitance_of_zero_without_a_delay_is_still_taken(tmp_path):
+    # invented test design: a stretch that loads nothing (no delay: a lumped 0 pF) has no
+    # impedance to be infinite; only beside a delay is a capacitance of 0 refused
+    path = write(tmp_path, SPI.replace(_SCLK, 'lines.sclk = { length = "5 cm", '
+                                             'capacitance = "0 pF/cm" }'))
+    line = load_design(path).bus("spi0").lines["sclk"]
+    assert [s.capacitance for s in line.sections] == [0.0]
+
+
+def test_the_keys_a_protocol_reads_still_load(tmp_path):
+    # invented test designs: each refused key written where its protocol reads it
+    i2c = I2C.replace('supply = "3.3 V"', 'supply = "3.3 V"\nextra_capacitance = "10 pF"')
+    i2c = i2c.replace('part = "eeprom-i2c" }', 'part = "eeprom-i2c", series_resistor = "100 Ω", '
+                                              "switched = true }")
+    bus = load_design(write(tmp_path, i2c)).bus("i2c0")
+    assert bus.segments[0].extra_capacitance == pytest.approx(10e-12)
+    assert [(d.series_resistor, d.switched) for d in bus.devices] == [
+        (None, False), (pytest.approx(100.0), True)]
+    spi = SPI.replace('clock = "10 MHz"', 'clock = "10 MHz"\nspi_mode = 3').replace(
+        _SCLK, 'lines.sclk = { length = "5 cm", geometry = "top", series_resistor = "33 Ω", '
+               'extra_capacitance = "4 pF" }')
+    bus = load_design(write(tmp_path, spi)).bus("spi0")
+    assert bus.spi_mode == 3
+    sclk = bus.lines["sclk"]
+    assert (sclk.series_resistor, sclk.extra_capacitance) == (pytest.approx(33.0),
+                                                              pytest.approx(4e-12))
+    # and their defaults where a line leaves them out
+    bare = load_design(write(tmp_path, SPI)).bus("spi0")
+    assert (bare.spi_mode, bare.lines["sclk"].series_resistor,
+            bare.lines["sclk"].extra_capacitance) == (0, "none", 0.0)
 
 
 def test_missing_file_exits_2(tmp_path, capsys):

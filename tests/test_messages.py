@@ -1805,6 +1805,86 @@ def _(env):
         'geometry = "g" }', 'geometry = "g", pullup = "10 kΩ" }')), env)
 
 
+# Keys a bus's protocol does not read, refused where they are written with where the value
+# belongs (taken and ignored before: the result did not change; invented test designs)
+_OD_TRACE = 'geometry = "g" }'
+
+
+def _od_trace_key(env, key_value: str):
+    return _fails(lambda e: e.design(I2C_BUS.replace(_OD_TRACE, f'geometry = "g", {key_value} }}')),
+                  env)
+
+
+@case("LINE_KEY_NOT_OPEN_DRAIN", M.LINE_KEY_NOT_OPEN_DRAIN.format(key="series_resistor"))
+def _(env):
+    return _od_trace_key(env, 'series_resistor = "10 Ω"')
+
+
+@case("SERIES_RESISTOR_ON_DEVICE")
+def _(env):
+    return str(_od_trace_key(env, 'series_resistor = "10 Ω"'))
+
+
+@case("EXTRA_CAPACITANCE_BESIDE_TRACE")
+def _(env):
+    return str(_od_trace_key(env, 'extra_capacitance = "10 pF"'))
+
+
+@case("KEY_BELONGS_ON_LINE", M.KEY_BELONGS_ON_LINE.format(key="extra_capacitance"))
+def _(env):
+    return str(_fails(lambda e: e.design(SPI_BUS + 'extra_capacitance = "1 µF"\n'), env))
+
+
+@case("TRACE_BELONGS_ON_LINES")
+def _(env):
+    return str(_fails(lambda e: e.design(
+        SPI_BUS + 'trace = { length = "5 cm", geometry = "g" }\n'), env))
+
+
+@case("SPI_MODE_NOT_SPI")
+def _(env):
+    return _fails(lambda e: e.design(I2C_BUS + "spi_mode = 3\n"), env)
+
+
+_SPI_U7 = '{ ref = "U7", part = "nor-flash-spi" }'
+
+
+def _spi_device_key(env, key_value: str):
+    return _fails(lambda e: e.design(SPI_BUS.replace(
+        _SPI_U7, f'{{ ref = "U7", part = "nor-flash-spi", {key_value} }}')), env)
+
+
+@case("DEVICE_KEY_NOT_PUSH_PULL", M.DEVICE_KEY_NOT_PUSH_PULL.format(key="switched"))
+def _(env):
+    return _spi_device_key(env, "switched = true")
+
+
+@case("SWITCHED_NOT_CHECKED")
+def _(env):
+    return str(_spi_device_key(env, "switched = true"))
+
+
+@case("SERIES_RESISTOR_ON_LINE")
+def _(env):
+    return str(_spi_device_key(env, 'series_resistor = "33 Ω"'))
+
+
+def _zero_c_with_delay(env):
+    return _fails(lambda e: e.design(SPI_BUS.replace(
+        'lines.sclk = { length = "3 cm", geometry = "g" }',
+        'lines.sclk = { length = "3 cm", capacitance = "0 pF/cm", delay = "60 ps/cm" }')), env)
+
+
+@case("CAPACITANCE_ZERO_WITH_DELAY")
+def _(env):
+    return _zero_c_with_delay(env)
+
+
+@case("IMPEDANCE_IS_DELAY_OVER_C")
+def _(env):
+    return str(_zero_c_with_delay(env))
+
+
 @case("LINE_PULLUP_TOLERANCE_ALONE")
 def _(env):
     return _fails(lambda e: e.design("""

@@ -256,6 +256,24 @@ PART_LACKS_PIN_ON_SIDE = "the part has no {function} pin on side {side}"
 BRIDGE_IN_TWO_SEGMENTS = "a bridging part must appear in two segments, once per side"
 BUS_HAS_NO_SEGMENTS = "a {protocol} bus has no segments"
 BUS_HAS_NO_KEY = "a {protocol} bus has no {key}"
+# keys a protocol does not use, each refused where it is written with where it belongs
+KEY_BELONGS_ON_LINE = "{key} of an SPI or GPIO bus belongs on a line: lines.<signal>.{key}"
+TRACE_BELONGS_ON_LINES = ('an SPI or GPIO bus routes each signal as a line of its own: '
+                          'lines.<signal> = { length = "10 cm", geometry = "NAME" }')
+LINE_KEY_NOT_OPEN_DRAIN = "only an SPI or GPIO line takes {key}"
+SERIES_RESISTOR_ON_DEVICE = ("series_resistor of an I2C or SMBus bus belongs on a device: "
+                             "devices[N].series_resistor, between its pin and the bus")
+EXTRA_CAPACITANCE_BESIDE_TRACE = ("extra_capacitance of an I2C or SMBus bus belongs beside "
+                                  "its trace: the bus's (or segment's) extra_capacitance")
+SPI_MODE_NOT_SPI = "only an SPI bus takes an spi_mode"
+DEVICE_KEY_NOT_PUSH_PULL = "only a device on an I2C or SMBus bus takes {key}"
+SERIES_RESISTOR_ON_LINE = ("series_resistor of an SPI or GPIO bus belongs on a line, at its "
+                           "driver: lines.<signal>.series_resistor")
+SWITCHED_NOT_CHECKED = ("the power-off check is made on I2C and SMBus buses only; leave "
+                        "switched out")
+CAPACITANCE_ZERO_WITH_DELAY = "a stretch with a delay per length needs a capacitance above 0"
+IMPEDANCE_IS_DELAY_OVER_C = ("its impedance is delay / capacitance: a line of no capacitance "
+                             "and a delay would have an infinite one")
 LINE_PULLUP_NOT_GPIO = "only a GPIO or SPI line takes a pullup"
 LINE_PULLUP_TOLERANCE_ALONE = "a pullup_tolerance needs the line's pullup"
 DEVICE_PIN_NOT_GPIO = "only a device on a GPIO bus takes a pin"

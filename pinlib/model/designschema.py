@@ -39,8 +39,13 @@ def _tidy(node):
         kept = [o for o in options if o != {"type": "null"}]
         if len(kept) == 1:
             del node["anyOf"]
-            node = {**kept[0], **{k: v for k, v in node.items() if k != "description"
-                                  or "description" not in kept[0]}}
+            inner, outer = kept[0].get("description"), node.get("description")
+            node = {**kept[0], **node}
+            if inner and outer and inner != outer:
+                # what the file writes, then the field's own words (where it belongs)
+                node["description"] = f"{inner}; {outer}"
+            elif inner:
+                node["description"] = inner
         else:
             node["anyOf"] = kept
     if "default" in node:
@@ -54,9 +59,50 @@ def _tidy(node):
     return node
 
 
+def _when(key: str, values, then: dict) -> dict:
+    """``if`` the table's ``key`` is one of ``values`` ``then`` ``then``."""
+    return {"if": {"properties": {key: {"enum": list(values)}}, "required": [key]},
+            "then": then}
+
+
+def _refused(*keys: str) -> dict:
+    # {"not": {}} rather than false: a validator then names the key itself (jsonschema
+    # 4.26 names the table holding a key refused by false)
+    return {"properties": {k: {"not": {}} for k in keys}}
+
+
+def _by_kind(defs: dict) -> None:
+    """The keys the loader refuses by a bus's protocol and the methods it takes by a
+    geometry's kind (:mod:`pinlib.model.design.buses`, ``build``, ``resolve``): the
+    records are shared by every protocol, so these are conditions on the shared
+    tables."""
+    from pinlib.core import protocols
+    from pinlib.physics import lines as tl
+
+    # an open-drain trace: none of a push-pull line's own keys
+    od_trace = _refused("route", "series_resistor", "extra_capacitance", "pullup",
+                        "pullup_tolerance")
+    open_drain = _refused("lines")
+    open_drain["properties"].update(
+        trace=od_trace, segment={"items": {"properties": {"trace": od_trace}}})
+    push_pull = _refused("trace", "extra_capacitance", "pullup", "pullup_tolerance",
+                         "pullup_series", "cables", "segment", "mode")
+    push_pull["properties"]["devices"] = {"items": _refused("series_resistor", "switched")}
+    defs["RawBus"]["allOf"] = [
+        _when("protocol", protocols.OPEN_DRAIN_PROTOCOLS, open_drain),
+        _when("protocol", protocols.PUSH_PULL_PROTOCOLS, push_pull),
+        _when("protocol", [p for p in protocols.NAMES if p != "spi"], _refused("spi_mode")),
+    ]
+    defs["RawGeometry"]["allOf"] = [
+        _when("kind", [kind], {"properties": {"method": {"enum": list(methods)}}})
+        for kind, methods in (("microstrip", tl.MICROSTRIP_METHODS),
+                              ("stripline", tl.STRIPLINE_METHODS))]
+
+
 def design_json_schema() -> dict:
     """The JSON Schema of a design file (``format = "pinlib.design/1"``), draft 2020-12."""
     base = _tidy(record_json_schema(RawDesign))
+    _by_kind(base["$defs"])
     return {
         "$schema": SCHEMA_DIALECT,
         **base,

@@ -118,6 +118,9 @@ def _bus(rb: RawBus, bloc, ids: set[str], r: _Resolver, homes: dict) -> Bus:
         raise err(M.BUS_HAS_NO_MODE.format(protocol=rb.protocol), bloc + ("mode",),
                   value=rb.mode,
                   hint="give its clock instead" if rb.protocol == "spi" else None)
+    if rb.spi_mode is not None and rb.protocol != "spi":
+        raise err(M.SPI_MODE_NOT_SPI, bloc + ("spi_mode",), value=rb.spi_mode,
+                  hint="leave spi_mode out")
     if protocols.is_open_drain(rb.protocol):
         return _open_drain_bus(rb, bloc, mode, r.device, r.sections, r.cables, err)
     return _push_pull_bus(rb, bloc, r.device, r.sections, err, homes)

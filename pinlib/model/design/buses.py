@@ -38,7 +38,7 @@ def _open_drain_bus(rb: RawBus, bloc, mode, device, sections, cables, err) -> Bu
     _check_joined(segments, err)
     return Bus(rb.id, rb.protocol, mode, rb.clock, segments[0].supply,
                segments[0].supply_tolerance, tuple(segments), tuple(all_devices), {},
-               rb.spi_mode, rb.title, segments[0].capacitance_tolerance,
+               0, rb.title, segments[0].capacitance_tolerance,
                segments[0].length_tolerance, bloc)
 
 
@@ -81,12 +81,9 @@ def _segment(rb: RawBus, rs, sloc, si: int, count: int, device, sections, cables
     seg_id = rs.id or (rb.id if count == 1 else f"{rb.id}-{si + 1}")
     cab = cables(rs.cables or (rb.cables if rs is not rb else ()), sloc + ("cables",))
     trace = pick("trace")
-    own = None if trace is None else _line_pullup_key(trace)
-    if own:  # a GPIO line's key; here the bus's
+    if trace is not None:
         # (a bus with segments gives no trace of its own: the segment's is at sloc)
-        raise err(M.LINE_PULLUP_NOT_GPIO, sloc + ("trace", own),
-                  hint="an I2C or SMBus bus (or segment) takes its pull-up as pullup = "
-                       "\"2.2 kΩ\" or \"auto\" beside its trace")
+        _refuse_line_keys(trace, sloc + ("trace",), err)
     series = pick("pullup_series", "E24")
     from pinlib.core.eseries import SERIES_NAMES
     if series.upper() not in SERIES_NAMES:
@@ -208,11 +205,20 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
     if rb.segment:
         raise err(M.BUS_HAS_NO_SEGMENTS.format(protocol=rb.protocol), bloc + ("segment",),
                   hint="route each signal under lines.<signal>")
-    for key in ("pullup", "pullup_tolerance", "pullup_series", "cables"):
-        if getattr(rb, key):
-            raise err(M.BUS_HAS_NO_KEY.format(protocol=rb.protocol, key=key), bloc + (key,))
+    for key in ("pullup", "pullup_tolerance", "pullup_series", "cables", "trace",
+                "extra_capacitance"):
+        if getattr(rb, key) is not None and getattr(rb, key) != ():
+            # where the value belongs: a line's own key, or the lines themselves
+            hint = (M.TRACE_BELONGS_ON_LINES if key == "trace" else
+                    M.KEY_BELONGS_ON_LINE.format(key=key)
+                    if key in ("pullup", "pullup_tolerance", "extra_capacitance") else None)
+            value = (_shown(rb.extra_capacitance, "F") if key == "extra_capacitance" else
+                     _shown(rb.pullup, "Ω") if key == "pullup" else None)
+            raise err(M.BUS_HAS_NO_KEY.format(protocol=rb.protocol, key=key), bloc + (key,),
+                      value=value, hint=hint)
     if rb.supply is None:
         raise err(M.BUS_NEEDS_SUPPLY, bloc + ("supply",), expected="supply = \"3.3 V\"")
+    _refuse_open_drain_device_keys(rb, bloc, err)
     devices = tuple(device(d, bloc + ("devices", i)) for i, d in enumerate(rb.devices))
     if not any(d.is_controller for d in devices):
         raise err(M.BUS_NEEDS_CONTROLLER, bloc + ("devices",),
@@ -242,7 +248,8 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
         if rt.pullup_tolerance is not None and rt.pullup is None:
             raise err(M.LINE_PULLUP_TOLERANCE_ALONE, loc + ("pullup_tolerance",),
                       expected='pullup = "10 kΩ" beside it, or no pullup_tolerance')
-        lines[sig] = Line(sig, secs, rt.series_resistor, rt.extra_capacitance, loc, points,
+        lines[sig] = Line(sig, secs, "none" if rt.series_resistor is None
+                          else rt.series_resistor, rt.extra_capacitance or 0.0, loc, points,
                           alike, pullup=rt.pullup,
                           pullup_tolerance=(None if rt.pullup is None else
                                             PULLUP_TOLERANCE if rt.pullup_tolerance is None
@@ -262,7 +269,7 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
             raise err(M.SPI_NEEDS_SCLK, bloc + ("lines",),
                       expected='lines.sclk = { length = "8 cm", geometry = "..." }')
     return Bus(rb.id, rb.protocol, None, rb.clock, rb.supply, rb.supply_tolerance or 0.0, (),
-               devices, lines, rb.spi_mode, rb.title, rb.capacitance_tolerance or 0.0,
+               devices, lines, rb.spi_mode or 0, rb.title, rb.capacitance_tolerance or 0.0,
                rb.length_tolerance or 0.0, bloc)
 
 
@@ -284,11 +291,49 @@ def _one_spi_controller(devices, err) -> None:
                    "of its own")
 
 
-def _line_pullup_key(trace) -> str | None:
-    """The first key of a line's own pull-up a trace writes (``pullup``, then
-    ``pullup_tolerance``), or None: only a GPIO or SPI line takes them."""
-    return next((k for k in ("pullup", "pullup_tolerance") if getattr(trace, k) is not None),
-                None)
+#: The keys of an SPI or GPIO line that an open-drain trace does not take, with where the
+#: value belongs on an I2C or SMBus bus (None: the pull-up keys, one hint for both).
+_LINE_ONLY_KEYS = {"pullup": None, "pullup_tolerance": None,
+                   "series_resistor": M.SERIES_RESISTOR_ON_DEVICE,
+                   "extra_capacitance": M.EXTRA_CAPACITANCE_BESIDE_TRACE}
+
+
+def _refuse_line_keys(trace, loc, err) -> None:
+    """Refuse in an open-drain bus's (or segment's) ``trace`` the first key only a push-pull
+    line takes (its own pull-up, series resistor, extra capacitance), at that key, with
+    where its value belongs: the open-drain engine reads none of them, and a key taken
+    but not read would let a design look checked with it."""
+    for key, hint in _LINE_ONLY_KEYS.items():
+        value = getattr(trace, key)
+        if value is None:
+            continue
+        if hint is None:
+            raise err(M.LINE_PULLUP_NOT_GPIO, loc + (key,),
+                      hint="an I2C or SMBus bus (or segment) takes its pull-up as pullup = "
+                           "\"2.2 kΩ\" or \"auto\" beside its trace")
+        raise err(M.LINE_KEY_NOT_OPEN_DRAIN.format(key=key), loc + (key,),
+                  value=_shown(value, "Ω" if key == "series_resistor" else "F"), hint=hint)
+
+
+def _shown(value, unit: str):
+    """A validated value as a message shows it: a word as written, a number with its
+    unit."""
+    return value if isinstance(value, str) else format_si(value, unit)
+
+
+def _refuse_open_drain_device_keys(rb: RawBus, bloc, err) -> None:
+    """Refuse on a device of an SPI or GPIO bus the keys only the open-drain engine reads:
+    ``series_resistor`` (a push-pull line takes its own, at the driver) and ``switched``
+    (the power-off check), at the first device that writes one."""
+    for i, d in enumerate(rb.devices):
+        loc = bloc + ("devices", i)
+        if d.series_resistor is not None:
+            raise err(M.DEVICE_KEY_NOT_PUSH_PULL.format(key="series_resistor"),
+                      loc + ("series_resistor",), value=format_si(d.series_resistor, "Ω"),
+                      hint=M.SERIES_RESISTOR_ON_LINE)
+        if d.switched is not None:
+            raise err(M.DEVICE_KEY_NOT_PUSH_PULL.format(key="switched"), loc + ("switched",),
+                      value=d.switched, hint=M.SWITCHED_NOT_CHECKED)
 
 
 def _no_device_pin(devices, err) -> None:

@@ -8,7 +8,7 @@ from pathlib import Path
 
 from pinlib.core import messages as M
 from pinlib.core import protocols
-from pinlib.core.errors import DesignError, InputError, LibraryError
+from pinlib.core.errors import DesignError, InputError, LibraryError, PinlibError
 from pinlib.core.records import RecordError
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_index, line_of, load
@@ -59,8 +59,14 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
     index = line_index(text)
     fname = str(path) if path else None
 
+    def line(loc):
+        # a key the file does not write, outside any table (a missing title): the top of
+        # the file, where it would go
+        found = line_of(index, loc)
+        return 1 if found is None and fname is not None else found
+
     def at(loc):
-        return {"file": fname, "line": line_of(index, loc)}
+        return {"file": fname, "line": line(loc)}
 
     if not data:
         raise DesignError(M.FILE_HOLDS_NOTHING, file=fname, expected=f'format = "{FORMAT}"')
@@ -71,9 +77,9 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
     try:
         raw = RawDesign.validate(data)
     except RecordError as exc:
-        errors = record_errors(exc, file=fname, locate=lambda _f, loc: line_of(index, loc),
+        errors = record_errors(exc, file=fname, locate=lambda _f, loc: line(loc),
                                  cls=DesignError, model=RawDesign, format_name="design")
-        errors = [_route_key_hint(e) for e in errors]
+        errors = [_expected_form(_route_key_hint(e)) for e in errors]
         # a misspelt key explains the required field it leaves missing: name it first;
         # the others follow in the file's order, so one run names every invalid field
         errors.sort(key=lambda e: (e.problem != M.UNKNOWN_FIELD, e.line or 0))
@@ -109,6 +115,57 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
             raise InputError(exc.problem, field=source, value=exc.file,
                              hint=M.FOLDER_NAMED_BY.format(source=source)) from None
     return _build(raw, path, library, text, swaps or {}, index)
+
+
+#: What a required field missing from a design's table is written like, by its key.
+_MISSING_WRITTEN = {"title": 'title = "Sensor board, rev A"', "id": 'id = "i2c0"',
+                    "ref": 'ref = "U2"', "part": 'part = "PART-ID"'}
+
+#: The inline table a trace, a line or one of their stretches is written as, by the key
+#: that holds it ({length}: the length written in its place, or an example).
+_TABLE_WRITTEN = {
+    "trace": '{{ length = "{length}", geometry = "NAME" }}',
+    "lines": '{{ length = "{length}", geometry = "NAME" }}',
+    "sections": '{{ length = "{length}", geometry = "NAME" }}',
+    "route": '{{ from = "U1", to = "U2", length = "{length}", geometry = "NAME" }}',
+    "devices": '{{ ref = "U2", part = "PART-ID" }}',
+    "cables": '{{ part = "CABLE-PART-ID", length = "{length}" }}',
+}
+
+
+def _expected_form(err: DesignError) -> DesignError:
+    """A missing required field, or a value where a table is due (``trace = "25 cm"``),
+    with what it is written like, where the record layer gave no ``expected``."""
+    if err.expected is not None or not err.field:
+        return err
+    parts = err.field.replace("]", "").replace("[", ".").split(".")
+    form = None
+    if err.problem == M.MISSING_FIELD:
+        form = _MISSING_WRITTEN.get(parts[-1])
+    elif err.problem == M.NOT_TABLE:
+        # the key holding the table: trace, lines.<signal>, sections[i], devices[i]...
+        key = parts[-2] if parts[-1].isdigit() or (len(parts) > 1 and parts[-2] == "lines") \
+            else parts[-1]
+        template = _TABLE_WRITTEN.get(key)
+        if template is not None:
+            written = err.value if isinstance(err.value, str) and _is_length(err.value) \
+                else "10 cm"
+            form = template.format(length=written.strip())
+    if form is None:
+        return err
+    return type(err)(err.problem, file=err.file, line=err.line, field=err.field,
+                     value=err.value, expected=form, hint=err.hint, also=err.also)
+
+
+def _is_length(text: str) -> bool:
+    """Whether ``text`` reads as a length (a trace written as its length alone)."""
+    from pinlib.core.quantity import parse
+
+    try:
+        parse(text, "m")
+    except (PinlibError, ValueError):
+        return False
+    return True
 
 
 def _route_key_hint(err: DesignError) -> DesignError:

@@ -169,8 +169,15 @@ class RawTrace(RawSection):
                     f"of length/sections; the points form one tree holding every device "
                     f"with a pin on the line; 1 to {MAX_ROUTE_STRETCHES} stretches")] = ()
     length: Length | None = None  # type: ignore[assignment]
-    series_resistor: SeriesSetting = "none"  # push-pull lines only
-    extra_capacitance: Capacitance = 0.0
+    # push-pull lines only: None (not written) lets the loader refuse them in an
+    # open-drain trace, where nothing reads them (pinlib.model.design.buses)
+    series_resistor: SeriesSetting | None = field(
+        default=None, description="SPI and GPIO lines only (default 'none'; refused in an "
+                                  "I2C or SMBus trace)")
+    extra_capacitance: Capacitance | None = field(
+        default=None, description="SPI and GPIO lines only, at the line's far end (default "
+                                  "0; refused in an I2C or SMBus trace, whose bus or "
+                                  "segment takes it beside the trace)")
     pullup: Pullup | None = None  # GPIO and SPI lines: a resistor to the bus supply
     pullup_tolerance: Tolerance | None = None  # lines with a pullup: ± of that resistor
 
@@ -185,8 +192,12 @@ class RawDevice(Record):
     part: str
     role: Literal["controller", "peripheral", "target"] = "peripheral"
     supply: Supply | None = None
-    switched: bool = False
-    series_resistor: Resistance | None = None
+    switched: bool | None = field(
+        default=None, description="I2C and SMBus buses only: the device's rail can be off "
+                                  "while the bus is live (default false)")
+    series_resistor: Resistance | None = field(
+        default=None, description="I2C and SMBus buses only: a resistor between the pin "
+                                  "and the bus (an SPI or GPIO line takes its own)")
     side: Literal["a", "b"] | None = None
     internal_pullups: bool = False
     pin: str | None = None
@@ -205,8 +216,12 @@ class RawSegment(Record):
     pullup: PullupSetting | None = None
     pullup_tolerance: Tolerance | None = None
     pullup_series: str | None = None
-    trace: RawTrace | None = None
-    extra_capacitance: Capacitance | None = None
+    trace: RawTrace | None = field(
+        default=None, description="I2C and SMBus buses only (an SPI or GPIO bus routes "
+                                  "each signal as lines.<signal>)")
+    extra_capacitance: Capacitance | None = field(
+        default=None, description="I2C and SMBus buses only (an SPI or GPIO line takes "
+                                  "its own: lines.<signal>.extra_capacitance)")
     capacitance_tolerance: Ratio | None = None
     length_tolerance: Ratio | None = None
     cables: tuple[RawCable, ...] = ()
@@ -219,7 +234,8 @@ class RawBus(RawSegment):
     title: str | None = None
     mode: str | None = None
     clock: Frequency | None = None
-    spi_mode: Annotated[int, Rule(ge=0, le=3)] = 0
+    spi_mode: Annotated[int, Rule(ge=0, le=3)] | None = field(
+        default=None, description="SPI buses only: 0 to 3 (default 0)")
     segment: tuple[RawSegment, ...] = ()
     lines: dict[str, RawTrace] = field(default_factory=dict)
 

@@ -70,7 +70,7 @@ class _Resolver:
         if d.supply is not None and not d.supply > 0:
             raise err(M.SUPPLY_NOT_POSITIVE, loc + ("supply",), value=format_si(d.supply, "V"))
         role = "peripheral" if d.role == "target" else d.role
-        return Device(d.ref, part_id, part, role, d.supply, d.switched, d.series_resistor,
+        return Device(d.ref, part_id, part, role, d.supply, bool(d.switched), d.series_resistor,
                       d.side, d.internal_pullups, d.pin, d.capacitance_tolerance, loc)
 
     def too_many_sections(self, count, loc):
@@ -118,6 +118,14 @@ class _Resolver:
                       "\"0.8 pF/cm\"",
                       hint="a delay per length goes with a capacitance per length"
                       if t.delay is not None else None)
+        if t.delay is not None and not t.capacitance > 0:
+            # Z0 = delay / capacitance: no line has an infinite impedance (a capacitance
+            # of 0 alone is a stretch that loads nothing, and is taken)
+            raise err(M.CAPACITANCE_ZERO_WITH_DELAY, loc + ("capacitance",),
+                      value=format_si(t.capacitance, "F/m"),
+                      expected=f"more than 0 and at most {format_si(1e-6, 'F/m')} beside "
+                               "a delay, e.g. capacitance = \"1 pF/cm\"",
+                      hint=M.IMPEDANCE_IS_DELAY_OVER_C)
         return (Section(t.length, None, t.capacitance, t.delay, loc=tuple(loc)),)
 
     def _cable_section(self, t: RawTrace | RawSection, loc) -> Section:
@@ -147,6 +155,8 @@ def _geometries(raw: RawDesign, err) -> dict[str, Geometry]:
     }
     for name, g in geometries.items():
         loc = ("board", "geometry", name)
+        if g.method is not None:
+            _check_method(g, loc, err)
         if g.kind == "microstrip" and g.height is None:
             raise err(M.MICROSTRIP_NEEDS_HEIGHT, loc + ("height",))
         if g.kind == "stripline" and g.height is None and g.spacing is None:
@@ -158,11 +168,24 @@ def _geometries(raw: RawDesign, err) -> dict[str, Geometry]:
     return geometries
 
 
+def _check_method(g: Geometry, loc, err) -> None:
+    """Refuse a ``method`` its kind has not, at the geometry's ``method``, with the
+    methods it has (numpy's models are imported only for a design that names one)."""
+    from pinlib.physics import lines as tl
+
+    methods = tl.MICROSTRIP_METHODS if g.kind == "microstrip" else tl.STRIPLINE_METHODS
+    if g.method not in methods:
+        raise err(M.UNKNOWN_LINE_METHOD.format(kind=g.kind), loc + ("method",),
+                  value=g.method, expected="one of " + ", ".join(
+                      f"'{m}'" + (" (the default)" if i == 0 else "")
+                      for i, m in enumerate(methods)))
+
+
 def _check_impedance(g: Geometry, err) -> None:
     """Refuse a geometry a line uses whose named method gives no positive impedance (the
     IPC-2141 forms past their logarithm's zero); a geometry merely outside a method's
-    range gives numbers and a note.  The default methods and an unknown method (reported
-    when the design is checked) are left alone."""
+    range gives numbers and a note.  The default methods are left alone; an unknown
+    method was refused when the geometries were read (:func:`_check_method`)."""
     from pinlib.physics import lines as tl  # numpy's models: only for a named method
 
     methods = tl.MICROSTRIP_METHODS if g.kind == "microstrip" else tl.STRIPLINE_METHODS
