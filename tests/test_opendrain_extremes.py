@@ -254,6 +254,15 @@ def test_a_leakage_noise_margin_failure_names_the_largest_pullup(tmp_path):
     assert chk.status == "fail"
     assert chk.fix and "at most 1.1 kΩ" in chk.fix and chk.fix in chk.message
     assert "leakage" in chk.fix
+    # derived the same way where the drop (30 V) is larger than the rail and the level
+    # rests at 0 V: the bound does not move with the pull-up that failed
+    res = _leaky_bus(tmp_path / "b", "100 kΩ")
+    for id in ("noise-margin-high", "v-oh"):
+        chk = next(c for c in res.checks if c.id == id and c.subject.startswith("SDA"))
+        assert chk.status == "fail"
+        # v-oh: VIH 0.7·VDD (UM10204 table 9) without the margin, 0.99 V / 301 µA
+        want = "1.1 kΩ" if id == "noise-margin-high" else "3.29 kΩ"
+        assert f"at most {want}" in chk.fix, (id, chk.fix)
 
 
 def test_a_rise_the_leakage_never_completes_has_no_figure(tmp_path):

@@ -347,20 +347,23 @@ def _noise_margin(w: Words, up: str, side: str, basis: str, rel: float,
                f"{up} {side}-level noise margin {_f(nm.value[0], 'V')} ({basis}, "
                f"{_CORNERS[c]}) against {rel:g}·VDD", subject=up)
     if chk.status == "fail" and ln is not None:
-        fix = _leakage_fix(w, ln, rp_hi, float(nm.value[0]) - float(nm.limit[0]))
+        fix = _leakage_fix(w, ln, rp_hi, float(nm.value[0]) - float(nm.limit[0]), c)
         if fix:
             _failed(chk, fix)
     w.grp.add(chk)
 
 
-def _leakage_fix(w: Words, ln: LineInputs, rp_hi: float, short: float) -> str:
-    """What a high level ``short`` volts under its limit needs of the pull-up: the
-    largest effective pull-up (nominal) whose leakage drop meets it, ``Rp·(1 + tol) ≤
-    rp_hi + short / ΣI``; and where that is under Rp(min), that no pull-up can.  Empty
-    where nothing leaks or even no drop at all would meet it (the rail is too low)."""
+def _leakage_fix(w: Words, ln: LineInputs, rp_hi: float, short: float, c: int) -> str:
+    """What a high level ``short`` volts under its limit (at rail corner ``c``) needs of
+    the pull-up: the largest effective pull-up (nominal) whose leakage drop meets it,
+    ``Rp·(1 + tol) ≤ rp_hi + short / ΣI``; and where that is under Rp(min), that no
+    pull-up can.  Empty where nothing leaks or even no drop at all would meet it (the
+    rail is too low).  A drop larger than the rail leaves the level at 0 V, not below:
+    ``short`` is then worked from the drop itself."""
     tol = w.seg_in.tol
     if not ln.leakage > 0:
         return ""
+    short -= max(0.0, ln.leakage * rp_hi - float(w.seg_in.vdd[c]))  # the level held at 0 V
     r_ok = rp_hi + short / ln.leakage
     if not r_ok > 0:
         return ""
@@ -428,7 +431,7 @@ def _v_oh(w: Words, ln: LineInputs, rp_hi: float) -> None:
                f"{_f(bc.limit[0], 'V')} of {r.tap.label}", subject=f"{up} {r.tap.label}",
                details={"receivers": {ln.receivers[j].tap.label: m for m, j in rows}})
     if failing:
-        fix = _leakage_fix(w, ln, rp_hi, float(bc.value[0]) - float(bc.limit[0]))
+        fix = _leakage_fix(w, ln, rp_hi, float(bc.value[0]) - float(bc.limit[0]), c)
         _failed(chk, f"{', '.join(failing)} cannot read the pull-up rail as high: pull up to "
                      "a rail they accept, put a level translator between, or lower the pull-up "
                      f"(leakage drop){': ' + fix if fix else ''}")
