@@ -165,7 +165,9 @@ def segment_notes(grp: Group, lim: OpenDrainLimits, seg_in: SegmentInputs, r_eff
     if seg_in.auto:
         grp.notes.append(f"pull-up chosen from {seg_in.segment.pullup_series}: "
                          f"{_f(seg_in.pullup, 'Ω')} (±{_f(seg_in.tol, '%')}), the value with the "
-                         "largest smaller margin to Rp(min) and Rp(max) on both lines")
+                         "largest smaller margin to Rp(min) and Rp(max) on both lines (each a "
+                         "fraction of its bound, at the tolerance's ends: R/Rp(min)−1 and "
+                         "1−R/Rp(max); on a wide window this lands near twice Rp(min))")
     for sig, ln in seg_in.lines.items():
         if ln.part_pullups:
             parts = "; ".join(f"{p['ref']} {p['pin']} {_f(p['value'], 'Ω')} ({p['kind']})"
