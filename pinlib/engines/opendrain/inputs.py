@@ -264,7 +264,8 @@ def _trace_capacitance(sec: Section, seg_in: SegmentInputs) -> float:
                     seg_in.notes.append(text)
         c = float(model.c)
         seg_in.cb_notes.append(f"{_f(sec.length, 'm')} of '{g.name}' ({g.kind}, "
-                               f"{_f(c, 'F/m')}, Z0 {_f(float(model.z0), 'Ω')})")
+                               f"{_f(c, 'F/m')}, Z0 {_f(float(model.z0), 'Ω')}; "
+                               f"{line_models.method_label(g.kind, g.method)})")
         return c * sec.length
     label = f"cable '{sec.part_id}'" if sec.part_id else "trace"
     seg_in.cb_notes.append(f"{_f(sec.length, 'm')} of {label} at {_f(sec.capacitance, 'F/m')}")

@@ -66,6 +66,7 @@ from pinlib.physics.lines.validity import (  # noqa: F401
     _quantities,
     _warn_outside,
     line_methods,
+    method_label,
     widest_width,
 )
 
@@ -76,6 +77,7 @@ __all__ = [
     "ValidityRange",
     "VALIDITY",
     "MICROSTRIP_METHODS",
+    "method_label",
     "STRIPLINE_METHODS",
     "microstrip",
     "stripline",

@@ -98,6 +98,40 @@ MICROSTRIP_METHODS = ("hammerstad-jensen", "ipc-2141")
 STRIPLINE_METHODS = ("wheeler", "cohn", "ipc-2141")
 """Symmetric stripline methods, the default first."""
 
+_METHOD_LABELS = {
+    ("microstrip", "hammerstad-jensen"): "Hammerstad–Jensen",
+    # IPC-2141's microstrip formula gives Z0 alone: the delay keeps Hammerstad–Jensen's
+    # effective permittivity
+    ("microstrip", "ipc-2141"): "Z0 by IPC-2141, delay by Hammerstad–Jensen",
+    ("stripline", "wheeler"): "Wheeler",
+    ("stripline", "cohn"): "Cohn",
+    ("stripline", "ipc-2141"): "IPC-2141",
+}
+
+
+def method_label(kind: str, method: str | None) -> str:
+    """The model behind a trace geometry's Z0 and delay, for people.
+
+    Parameters
+    ----------
+    kind : str
+        ``"microstrip"`` or ``"stripline"``. [1]
+    method : str or None
+        The geometry's ``method``; None for the kind's default. [1]
+
+    Returns
+    -------
+    str
+        E.g. ``"Hammerstad–Jensen"``. [1]
+
+    Examples
+    --------
+    >>> method_label("stripline", None)
+    'Wheeler'
+    """
+    default = MICROSTRIP_METHODS[0] if kind == "microstrip" else STRIPLINE_METHODS[0]
+    return _METHOD_LABELS.get((kind, method or default), method or default)
+
 VALIDITY: dict[str, dict[str, tuple[ValidityRange, ...]]] = {
     "microstrip": {
         "hammerstad-jensen": (
