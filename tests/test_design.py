@@ -665,3 +665,49 @@ def test_a_second_spi_microcontroller_described_as_a_load_is_on_the_lines(tmp_pa
         '  { ref = "U3", part = "mcu-3v3", role = "controller" },\n', "")
     # derived: U3's SCLK pin adds its c_in to the line the controller drives
     assert sclk_load(as_load) > sclk_load(without)
+
+
+_CROSSED = """format = "pinlib.part/1"
+id = "t-crossed"
+title = "Target whose fixed v_il meets 0.7 VDD at 3.57 V (invented test part)"
+category = "memory"
+extends = "eeprom-i2c"
+provenance = { basis = "estimate", source = "invented test part" }
+
+[pins.sda]
+v_il = "2.5 V"
+v_ih = "0.7 VDD"
+"""
+
+
+@pytest.mark.parametrize("supply, refused", [("3.3 V", True), ("5 V", False)])
+def test_a_part_whose_input_levels_cross_on_its_rail_is_refused_there(tmp_path, supply,
+                                                                      refused):
+    # derived: v_il 2.5 V lies above v_ih = 0.7·3.3 V = 2.31 V, below 0.7·5 V = 3.5 V
+    # (invented test part); the part file itself loads (the two cross at some supplies)
+    (tmp_path / "team").mkdir()
+    (tmp_path / "team" / "t-crossed.toml").write_text(_CROSSED, encoding="utf-8")
+    path = tmp_path / "d.toml"
+    path.write_text(f"""format = "pinlib.design/1"
+title = "crossed levels (invented test design)"
+library = ["team"]
+
+[[bus]]
+id = "b"
+protocol = "i2c"
+supply = "{supply}"
+pullup = "4.7 kΩ"
+trace = {{ length = "5 cm", capacitance = "1 pF/cm", delay = "60 ps/cm" }}
+devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller", supply = "3.3 V" }},
+  {{ ref = "U2", part = "t-crossed" }},
+]
+""", encoding="utf-8")
+    if not refused:
+        assert load_design(path).bus("b").devices[1].part_id == "t-crossed"
+        return
+    with pytest.raises(DesignError) as info:
+        load_design(path)
+    err = info.value
+    assert err.field == "bus[0].devices[1].part" and err.line == 13  # U2's line
+    assert "v_il 2.5 V above v_ih 2.31 V" in str(err) and "t-crossed.toml" in str(err)

@@ -624,6 +624,18 @@ def _(env):
     return rank_candidates(load_design(demo), "U4").format_text(width=None)
 
 
+@case("THRESHOLDS_INVERTED_AT_RAIL", M.THRESHOLDS_INVERTED_AT_RAIL.format(
+    pin="sda", v_il="2.5 V", v_ih="2.31 V", rail="3.3 V"))
+def _(env):
+    # an invented team part whose v_il (2.5 V) crosses v_ih (0.7 VDD) above 3.57 V of
+    # rail: the file loads, a 3.3 V bus refuses it
+    text = PART.format(id="p").replace('c_in = "8 pF"',
+                                       'c_in = "8 pF"\nv_il = "2.5 V"\nv_ih = "0.7 VDD"', 1)
+    env.write("team/p.toml", text)
+    lib = load_library([env.tmp / "team"], env=False)
+    return _fails(lambda e: e.design(I2C_BUS.replace("eeprom-i2c", "p"), library=lib), env)
+
+
 @case("THRESHOLDS_INVERTED", M.THRESHOLDS_INVERTED.format(v_il="1.5 VDD", v_ih="0.7 VDD"))
 def _(env):
     text = PART.format(id="p").replace('c_in = "8 pF"',

@@ -8,6 +8,7 @@ from pathlib import Path
 from pinlib.core import messages as M
 from pinlib.core import protocols
 from pinlib.core.errors import DesignError
+from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import line_index
 from pinlib.core.valueclass import value_class
 from pinlib.library.loader import Library
@@ -78,6 +79,7 @@ def _build(raw: RawDesign, path, library: Library, text: str, swaps: dict,
             buses.append(kept.buses[bi])  # built from the same tables before
             continue
         buses.append(_bus(rb, ("bus", bi), ids, r, homes))
+        _levels_in_order(buses[-1], r.err)
     _one_part_per_reference(buses, r.err, fname, index)
     unknown = set(swaps) - r.swapped
     if unknown:
@@ -124,3 +126,29 @@ def _bus(rb: RawBus, bloc, ids: set[str], r: _Resolver, homes: dict) -> Bus:
     if protocols.is_open_drain(rb.protocol):
         return _open_drain_bus(rb, bloc, mode, r.device, r.sections, r.cables, err)
     return _push_pull_bus(rb, bloc, r.device, r.sections, err, homes)
+
+
+def _levels_in_order(bus: Bus, err) -> None:
+    """Refuse a device whose part has an input pin with ``v_il`` above ``v_ih`` on the
+    device's own rail, nominal (its supply, else its segment's or bus's): no input
+    switches that way, so every level check on it would read nonsense.  The part file
+    itself is refused only where the two cross at every supply
+    (:data:`~pinlib.core.messages.THRESHOLDS_INVERTED`); a value typed wrong may cross
+    only at some, and this is where the design meets it."""
+    rails = [(seg.supply, seg.devices) for seg in bus.segments] or [(bus.supply, bus.devices)]
+    for supply, devices in rails:
+        for d in devices:
+            rail = d.supply if d.supply is not None else supply
+            if rail is None:
+                continue
+            for name, pin in d.part.pins.items():
+                if pin.v_il is None or pin.v_ih is None:
+                    continue
+                lo, hi = float(pin.v_il.at(rail)), float(pin.v_ih.at(rail))
+                if lo > hi:
+                    where = pin.v_il.origin_file or pin.v_ih.origin_file
+                    raise err(M.THRESHOLDS_INVERTED_AT_RAIL.format(
+                        pin=name, v_il=format_si(lo, "V"), v_ih=format_si(hi, "V"),
+                        rail=format_si(rail, "V")), d.loc + ("part",), value=d.part_id,
+                        hint=f"correct the part's values{f' ({where})' if where else ''}, or "
+                             "place a part whose levels suit this rail")
