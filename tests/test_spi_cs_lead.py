@@ -17,7 +17,7 @@ import numpy as np
 import pytest
 
 from pinlib.core import messages as M
-from pinlib.engines import spi
+from pinlib.engines import pptable, spi
 from pinlib.engines.pushpull import evaluate_bus
 from pinlib.engines.spi.budget import Term
 from pinlib.engines.spi.evaluate import term_check
@@ -199,3 +199,23 @@ def test_the_status_rule_of_an_assumed_term_is_one(tmp_path):
     assert [term_check(t, 20e6, 0.1, 0).status for t in (slack, rel, full)] == [
         "warn", "warn", "fail"]
     assert "a rule of thumb" in term_check(slack, 20e6, 0.1, 0).message
+
+
+def test_the_monte_carlo_table_warns_as_the_engine_does(tmp_path):
+    # the table of many boards (pptable) takes each term's status by Term.codes: on the
+    # assumed lead the first bit warns on every board, as the engine's check does
+    from tests.test_pptable import _both_ways
+
+    path, _, _ = _case(tmp_path)
+    text = path.read_text(encoding="utf-8").replace(
+        'supply_tolerance = "5 %"\n', 'supply_tolerance = "5 %"\nlength_tolerance = "10 %"\n')
+    path.write_text(text, encoding="utf-8")
+    d = load_design(path)
+    by_table, by_engine, table, _ = _both_ways(d.bus("spi"), d, 60, seed=3)
+    assert isinstance(table, pptable.LineTable)   # a table was built, not refused
+    assert by_table.engine_boards < 60            # and boards were taken from it
+    j = next(i for i, nm in enumerate(by_engine.names)
+             if nm["name"] == "spi cipo-first-bit U2")
+    assert (by_engine.items[j].margin < 0).all()   # short of t_setup on every board
+    np.testing.assert_array_equal(by_table.items[j].status, by_engine.items[j].status)
+    assert (by_table.items[j].status == STATUS_CODES["warn"]).all()
