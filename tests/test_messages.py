@@ -2890,6 +2890,58 @@ def _(env):
     return _fails(lambda e: spi.max_clock_vs_t_valid(*_bus(e), [5e-9]), env)
 
 
+# the library's mcu-3v3 records no t_cs_setup or t_cs_hold: the CS checks and the first
+# bit of adc-spi (CPHA 0) rest on the half period assumed for them
+_ASSUMED_CS_BUS = """
+[[bus]]
+id = "s"
+protocol = "spi"
+spi_mode = 0
+clock = "20 MHz"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "adc-spi" },
+]
+lines.sclk = { length = "20 cm", geometry = "g" }
+lines.copi = { length = "20 cm", geometry = "g" }
+lines.cipo = { length = "20 cm", geometry = "g" }
+lines.cs = { length = "20 cm", geometry = "g" }
+"""
+
+
+def _assumed_cs(env) -> dict:
+    """The JSON of ``pinlib check`` on :data:`_ASSUMED_CS_BUS`: its bus."""
+    path = env.write("design.toml", HEAD + _ASSUMED_CS_BUS)
+    main(["check", str(path), "--json"])
+    return json.loads(env.capsys.readouterr().out)["buses"][0]
+
+
+def _lead_assumed() -> str:
+    from pinlib.engines.spi import CS_LEAD_SOURCE
+
+    return M.CS_TIMING_ASSUMED.format(what="CS lead", field="t_cs_setup",
+                                      assumption=CS_LEAD_SOURCE)
+
+
+@case("CS_TIMING_ASSUMED", _lead_assumed)
+def _(env):
+    return next(c["source"] for c in _assumed_cs(env)["checks"] if c["id"] == "cs-setup")
+
+
+@case("CS_TIMING_ASSUMED_FIX", M.CS_TIMING_ASSUMED_FIX.format(field="t_cs_setup",
+                                                              what="CS lead"))
+def _(env):
+    return next(c["fix"] for c in _assumed_cs(env)["checks"]
+                if c["id"] == "cipo-first-bit")
+
+
+@case("CLOCK_ON_ASSUMED_CS", M.CLOCK_ON_ASSUMED_CS.format(what="CS lead", ref="U1",
+                                                          field="t_cs_setup"))
+def _(env):
+    return " ".join(_assumed_cs(env)["notes"])
+
+
 # ---------------------------------------------------------------- pinlib/studies/compare.py
 def _compare():
     from pinlib.studies import compare

@@ -440,10 +440,16 @@ def test_a_slow_first_bit_sets_the_highest_clock(tmp_path):
     assert res.figures["max_clock_limited_by"].value == "cipo-first-bit U2"
     assert res.figures["max_clock"].value == pytest.approx(1 / (2 * (t.required - t.b)),
                                                            rel=1e-9)
-    # a clock above it fails the check; the budget chart draws the path and adds up
+    # the figure keeps the term, and its note says it rests on the assumed CS lead
+    # (pp-ctrl records no t_cs_setup)
+    assert any("set by CIPO first bit U2, which rests on the CS lead assumed for U1"
+               in n for n in res.notes)
+    # a clock above it is short of the controller's t_setup: on the assumed lead a
+    # warning (tests/test_spi_cs_lead.py has it fail on a stated lead); the budget
+    # chart draws the path and adds up
     d2, bus2 = _first_bit_design(tmp_path, t_en="60 ns", clock="10 MHz", name="fast.toml")
     chk = next(c for c in evaluate_bus(bus2, d2).checks if c.id == "cipo-first-bit")
-    assert chk.status == "fail"
+    assert chk.status == "warn" and chk.margin < 0
     from pinlib.present.plotdata import timing_budget_data
     data = timing_budget_data(bus2, d2)
     assert "cipo-first-bit U2" in data.available

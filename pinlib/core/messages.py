@@ -471,6 +471,15 @@ CONTROLLER_LACKS_PUSH_PULL_PIN = "the controller has no push-pull {function} pin
 ZERO_LENGTH_NOT_SCALED = "a line of zero length cannot be scaled"
 NO_SUCH_PERIPHERAL = "no such peripheral on the bus"
 NO_T_VALID_TO_VARY = "the peripheral records no t_valid to vary"
+# a timing check whose available time rests on the CS lead (lag) pinlib assumes for a
+# controller that records none: its source and its fix, and the highest clock it sets
+CS_TIMING_ASSUMED = ("the time available rests on an assumed {what}: {assumption}; the "
+                     "controller's {field} from its datasheet makes this a full check")
+CS_TIMING_ASSUMED_FIX = ("record the controller's {field} (its {what}) from its datasheet: "
+                         "half a clock period is assumed in its place")
+CLOCK_ON_ASSUMED_CS = ("which rests on the {what} assumed for {ref} (half a clock period: "
+                       "it records no {field}); {ref}'s {field} from its datasheet makes "
+                       "the figure a full one")
 
 # pinlib/engines/bench.py (a rise time measured on the board against the model)
 NO_SUCH_BUS = "no bus of that id in the design"

@@ -20,9 +20,10 @@ bus's timing checks are sums of flights from several lines
    engine's own budget (``budget_terms``, which takes arrays) and the margin rule of
    its checks (:meth:`pinlib.engines.spi.budget.Term.check_margin`: relative to the
    requirement, or the slack in seconds where the requirement is 0); statuses come from
-   the margins by the engine's rule (:func:`pinlib.model.result.status_codes`; a slack
-   in seconds passes from 0 up, and warns below it where the 0 was taken for a
-   requirement the part does not record).  A slack in seconds is compared with the
+   the margins by the engine's rule (:meth:`~pinlib.engines.spi.budget.Term.codes`: a
+   slack in seconds passes from 0 up, and warns below it where the 0 was taken for a
+   requirement the part does not record; a term whose available time rests on an
+   assumed CS lead or lag warns at worst).  A slack in seconds is compared with the
    table's error in units of :func:`_flight_scale` (:meth:`LineTable.margin_scales`).
    A device's ``supply-range`` check is the engine's rule at the board's own rail
    (nothing interpolated).
@@ -266,10 +267,7 @@ class LineTable:
                 value[j] = t.a * period + np.asarray(t.b, dtype=float)
                 limit[j] = t.required
                 margin[j] = t.check_margin(value[j])   # the engine's term_check
-                if t.margin_unit is None:
-                    by_margin.append(j)
-                else:  # a slack in seconds: the engine's term_check rule
-                    status[j] = t.slack_codes(margin[j])
+                status[j] = t.codes(margin[j], self._warn)   # and its status rule
         if by_margin:
             rows = np.array(by_margin)
             status[rows] = status_codes(margin[rows], self._warn)

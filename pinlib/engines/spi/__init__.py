@@ -58,6 +58,15 @@ With ``T`` the clock period, all flights at the peripheral P unless said otherwi
   on the first edge.  Without ``t_cs_valid`` a note says the first bit is not budgeted
   (a memory drives nothing until a command is in; many converters drive at once).
 
+The CS lead and lag of half a period are assumptions, not datasheet values: a check
+whose available time rests on one (CS setup and the first CIPO bit on the lead, CS hold
+on the lag, where the controller records no ``t_cs_setup`` or ``t_cs_hold``) is a rule
+of thumb (``Term.assumed``): it warns where it would fail, and its source names the
+assumption and the controller's value that makes it a full check.  ``max_clock`` keeps
+such a term (half a period is what is known of that controller; leaving the term out
+would give a clock no data backs either), and where one sets it the figure's note says
+it rests on the assumed lead or lag.
+
 Bridging parts (buffers, translators, isolators) with a ``t_pd`` lie in the path of
 every signal.  On the forward paths (SCLK, COPI, CS) the clock and the data cross the
 same part, so its delay shifts both alike and cancels (its channels are taken as

@@ -82,11 +82,12 @@ class SpiAnalysis:
     def clock_limits(self) -> list[tuple[float, str, str]]:
         """Each timing requirement's and each part's own highest clock, lowest first:
         ``(clock, name, source)``, the name as ``"cipo-setup U2"`` or ``"f_max U1"`` and
-        the source of its limit; an unlimited bus gives ``[(inf, "nothing", "")]``. The
-        first sets :meth:`max_clock`. [Hz]"""
+        the source of its limit (a term's
+        :attr:`~pinlib.engines.spi.budget.Term.check_source`, which names a CS lead or lag
+        it assumes); an unlimited bus gives ``[(inf, "nothing", "")]``. The first sets
+        :meth:`max_clock`. [Hz]"""
         f_terms = term_clocks(self.terms)
-        out = [(float(f), f"{t.id} {t.subject}",
-                t.source or "not recorded by the part: taken as 0")
+        out = [(float(f), f"{t.id} {t.subject}", t.check_source)
                for f, t in zip(f_terms, self.terms, strict=True)]
         out += [(float(f), f"f_max {ref}", source) for ref, f, source in self.f_limits]
         out.sort(key=lambda x: x[0])

@@ -8,11 +8,12 @@ from dataclasses import field
 
 import numpy as np
 
+from pinlib.core import messages as M
 from pinlib.core.valueclass import value_class
 from pinlib.engines.pushline import (
     Flight,
 )
-from pinlib.engines.spi.modes import SpiMode
+from pinlib.engines.spi.modes import CS_ASSUMED, SpiMode
 
 #: The flights a peripheral's budget keeps per edge direction (``{"rise", "fall"}``);
 #: the others are one flight over both edges.
@@ -120,6 +121,12 @@ class Term:
         The terms that make up ``b`` and ``required``, for the check details. [s]
     recorded : bool
         Whether the part records the requirement (False: taken as 0). [1]
+    assumed : str or None
+        The controller's timing value the available time is assumed for, where it
+        records none: ``"t_cs_setup"`` (its CS lead taken as half a period, ``CS lead``)
+        or ``"t_cs_hold"`` (its CS lag, ``CS lag``); None where the time rests on no
+        such assumption.  The check of a term assumed so warns where it would fail
+        (:meth:`codes`). [1]
     """
 
     id: str
@@ -130,6 +137,7 @@ class Term:
     source: str
     parts: dict
     recorded: bool = True
+    assumed: str | None = None
 
     @property
     def margin_unit(self) -> str | None:
@@ -152,14 +160,44 @@ class Term:
 
     def slack_codes(self, slack):
         """The status codes (:data:`pinlib.model.result.STATUS_CODES`) of a slack in
-        seconds (:attr:`margin_unit` ``"s"``): it passes from 0 up (no fraction of the
-        limit to warn within) and fails below it, or warns where the 0 was taken for a
-        requirement the part does not record (no published limit stands behind it);
-        elementwise over arrays.  The one rule of the engine's check and the Monte Carlo
-        tables. [1]"""
+        seconds (:attr:`margin_unit` ``"s"``) by the requirement alone: it passes from 0
+        up (no fraction of the limit to warn within) and fails below it, or warns where
+        the 0 was taken for a requirement the part does not record (no published limit
+        stands behind it); elementwise over arrays.  :meth:`codes` adds the rule of an
+        assumed available time. [1]"""
         from pinlib.model.result import status_codes
 
         return np.minimum(status_codes(slack, 0.0), 2 if self.recorded else 1)
+
+    def codes(self, margin, warn_margin: float):
+        """The status codes (:data:`pinlib.model.result.STATUS_CODES`) of the check's
+        margins (:meth:`check_margin`), elementwise over arrays: a relative margin by
+        :func:`pinlib.model.result.status_codes` at ``warn_margin`` [1], a slack in
+        seconds by :meth:`slack_codes`; at most a warning where the available time rests
+        on an assumed CS lead or lag (:attr:`assumed`: a rule of thumb, as
+        :func:`pinlib.model.result.rule_of_thumb`).  The one rule of the engine's check
+        (:func:`pinlib.engines.spi.evaluate.term_check`) and the Monte Carlo
+        tables. [1]"""
+        from pinlib.model.result import status_codes
+
+        if self.margin_unit is None:
+            got = status_codes(margin, warn_margin)
+        else:
+            got = self.slack_codes(margin)
+        return np.minimum(got, 1 if self.assumed else 2).astype(np.int8)
+
+    @property
+    def check_source(self) -> str:
+        """The source the term's check names: its requirement's (or that the part does
+        not record it), and where the available time rests on an assumed CS lead or lag
+        (:attr:`assumed`), that assumption and the controller's value that would make the
+        check a full one. [1]"""
+        source = self.source or "not recorded by the part: taken as 0"
+        if self.assumed:
+            what, assumption = CS_ASSUMED[self.assumed]
+            source += "; " + M.CS_TIMING_ASSUMED.format(what=what, assumption=assumption,
+                                                        field=self.assumed)
+        return source
 
     def available(self, period):
         """Available time at a clock period. [s]"""
@@ -257,22 +295,25 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                  "cipo_early": p.cipo.early, "t_hold_controller": _or0(controller.t_hold)},
                 controller.t_hold is not None))
         if p.cs is not None:
+            # a controller that records no CS lead (lag) is taken to give half a period
+            # (modes.CS_LEAD_SOURCE, CS_LAG_SOURCE): the checks that rest on it warn only
             if controller.t_cs_lead is None:
                 a, lead = 0.5, 0.0
-                lead_text = "T/2"
+                lead_text, lead_assumed = "T/2", "t_cs_setup"
             else:
                 a, lead = 0.0, float(controller.t_cs_lead)
-                lead_text = lead
+                lead_text, lead_assumed = lead, None
             cs_on, cs_off = p.cs["fall"], p.cs["rise"]  # CS is active low
             terms.append(Term(
                 "cs-setup", p.ref, a, lead + s_first.early - cs_on.late,
                 _or0(p.t_cs_setup), src.get("t_cs_setup", ""),
                 {"lead": lead_text, "sclk_early": s_first.early, "cs_late": cs_on.late,
-                 "t_cs_setup": _or0(p.t_cs_setup)}, p.t_cs_setup is not None))
+                 "t_cs_setup": _or0(p.t_cs_setup)}, p.t_cs_setup is not None,
+                lead_assumed))
             if controller.t_cs_lag is None:
-                a_off, lag, lag_text = 0.5, 0.0, "T/2"
+                a_off, lag, lag_text, lag_assumed = 0.5, 0.0, "T/2", "t_cs_hold"
             else:
-                a_off = 0.0
+                a_off, lag_assumed = 0.0, None
                 lag = lag_text = float(controller.t_cs_lag)
             # the last edge leaves the controller lag before CS is released: the
             # peripheral sees CS held from the last edge's late arrival to CS's early one
@@ -280,7 +321,7 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 "cs-hold", p.ref, a_off, lag + cs_off.early - s_last.late,
                 _or0(p.t_cs_hold), src.get("t_cs_hold", ""),
                 {"lag": lag_text, "sclk_late": s_last.late, "cs_early": cs_off.early,
-                 "t_cs_hold": _or0(p.t_cs_hold)}, p.t_cs_hold is not None))
+                 "t_cs_hold": _or0(p.t_cs_hold)}, p.t_cs_hold is not None, lag_assumed))
             if mode.cpha == 0 and p.cipo is not None and p.t_cs_valid is not None:
                 # CPHA 0: the first bit is driven when CS asserts and sampled on the first
                 # edge, ``lead`` after CS leaves the controller; CS crosses each bridge
@@ -292,5 +333,5 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                     {"lead": lead_text, "cs_late": cs_on.late, "t_cs_valid": p.t_cs_valid,
                      "cipo_late": p.cipo.late, "bridges_round_trip": t_path,
                      "t_setup_controller": _or0(controller.t_setup)},
-                    controller.t_setup is not None))
+                    controller.t_setup is not None, lead_assumed))
     return terms

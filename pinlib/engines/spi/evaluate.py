@@ -6,6 +6,7 @@ import math
 
 import numpy as np
 
+from pinlib.core import messages as M
 from pinlib.core.labels import path_label
 from pinlib.engines.pushline import (
     EDGE_FRACTION,
@@ -14,13 +15,21 @@ from pinlib.engines.spi.analysis import SpiAnalysis, spi_analysis
 from pinlib.engines.spi.budget import Term
 from pinlib.engines.spi.modecheck import mode_checks
 from pinlib.engines.spi.modes import (
+    CS_ASSUMED,
     MARGIN_NOT_COMPUTED,
     NO_CLOCK_LIMIT,
     TIMING_REFERENCE,
     _fmt,
 )
 from pinlib.model.design import Bus, Design
-from pinlib.model.result import STATUSES, BusResult, Check, check_max, check_min
+from pinlib.model.result import (
+    STATUSES,
+    BusResult,
+    Check,
+    check_max,
+    check_min,
+    rule_of_thumb,
+)
 
 _TERM_TEXT = {
     "copi-setup": ("COPI setup at {ref}", "available setup {avail} against t_setup {req}"),
@@ -104,7 +113,8 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
     elif math.isfinite(f_top):
         res.figure("max_clock", f_top, "Hz")
         res.notes.append(f"highest clock {_fmt(f_top, 'Hz')}: what the timing budget and "
-                         f"the parts' f_max allow, set by {by_label}")
+                         f"the parts' f_max allow, set by {by_label}"
+                         + _assumed_clock_text(sa, by))
     else:  # no number to give: in words, never as infinity
         res.figure("max_clock", None, "Hz", reason=NO_CLOCK_LIMIT)
         res.notes.append(f"highest clock: {NO_CLOCK_LIMIT}")
@@ -130,6 +140,19 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
     return res
 
 
+def _assumed_clock_text(sa: SpiAnalysis, by: str) -> str:
+    """What the highest clock's note adds where the term that sets it (``by``, as
+    ``"cipo-first-bit U2"``) rests on a CS lead or lag assumed for a controller that
+    records none (:attr:`Term.assumed`): ", " and the words that say so; "" otherwise.
+    The figure keeps that term: half a period is what is known of such a controller,
+    and leaving the term out would give a clock that no data backs either."""
+    t = next((t for t in sa.terms if f"{t.id} {t.subject}" == by), None)
+    if t is None or not t.assumed:
+        return ""
+    return ", " + M.CLOCK_ON_ASSUMED_CS.format(what=CS_ASSUMED[t.assumed][0],
+                                               ref=sa.controller.ref, field=t.assumed)
+
+
 def lowest_margins(terms: list, clock: float) -> dict:
     """The figures ``cipo_setup_margin``, ``copi_setup_margin``...: for each term id, the
     lowest available minus required time over its peripherals at ``clock``, NaN where
@@ -145,12 +168,35 @@ def lowest_margins(terms: list, clock: float) -> dict:
 
 
 def term_check(t: Term, clock: float, warn: float, mode: int) -> Check:
-    """The check of one timing term at the clock; when a flight has no finite time (a
-    receiver that never crosses its threshold) a failing check without a value, whose
-    ``reason`` says why."""
+    """The check of one timing term at the clock.
+
+    Parameters
+    ----------
+    t : Term
+        The timing requirement. [s]
+    clock : float
+        The bus's clock. [Hz]
+    warn : float
+        The design's warning margin. [1]
+    mode : int
+        The SPI mode, for the check's details. [1]
+
+    Returns
+    -------
+    Check
+        Against the requirement (:meth:`Term.check_margin`, its status by
+        :meth:`Term.codes`); where a flight has no finite time (a receiver that never
+        crosses its threshold) a failing check without a value, whose ``reason`` says
+        why.  A term whose available time rests on an assumed CS lead or lag
+        (:attr:`Term.assumed`) is a rule of thumb
+        (:func:`pinlib.model.result.rule_of_thumb`): it warns where it would fail, and
+        its source and fix say what was assumed.
+    """
     title, body = _TERM_TEXT[t.id]
-    source = t.source or "not recorded by the part: taken as 0"
+    source = t.check_source
     details = {k: v for k, v in t.parts.items()} | {"mode": mode}
+    if t.assumed:
+        details["assumed"] = t.assumed
     head = f"{title.format(ref=t.subject)}: "
     avail = float(t.available(1.0 / clock))
     if not math.isfinite(avail):
@@ -165,21 +211,29 @@ def term_check(t: Term, clock: float, warn: float, mode: int) -> Check:
     message = (head + body.format(avail=_fmt(avail, "s"), req=_fmt(t.required, "s"))
                + f" at {_fmt(clock, 'Hz')}")
     if t.margin_unit is None:
-        return check_min(t.id, avail, t.required, "s", source, message, warn_margin=warn,
-                         subject=t.subject, details=details)
-    # A requirement of 0 (recorded, or taken for one the part does not record): a
-    # fraction of it means nothing, so the margin is the slack in seconds
-    slack = float(t.check_margin(avail))
-    status = STATUSES[int(t.slack_codes(slack))]
-    fix = None
-    if status == "warn":  # short of a 0 the part does not record: no limit to fail
-        field = next(k for k in _REQUIRED_FIELDS if k in t.parts)
-        fix = (f"record the part's {_REQUIRED_FIELDS[field]} from its datasheet, or "
-               "give the path more time")
-        message += (f"; {_fmt(-slack, 's')} short of 0, which is taken for a requirement "
-                    "the part does not record: a warning, not a failure")
-    return Check(t.id, status, avail, t.required, "s", slack, source, message,
-                 subject=t.subject, details=details, margin_unit=t.margin_unit, fix=fix)
+        chk = check_min(t.id, avail, t.required, "s", source, message, warn_margin=warn,
+                        subject=t.subject, details=details)
+    else:
+        # A requirement of 0 (recorded, or taken for one the part does not record): a
+        # fraction of it means nothing, so the margin is the slack in seconds
+        slack = float(t.check_margin(avail))
+        status = STATUSES[int(t.slack_codes(slack))]
+        fix = None
+        if status == "warn":  # short of a 0 the part does not record: no limit to fail
+            field = next(k for k in _REQUIRED_FIELDS if k in t.parts)
+            fix = (f"record the part's {_REQUIRED_FIELDS[field]} from its datasheet, or "
+                   "give the path more time")
+            message += (f"; {_fmt(-slack, 's')} short of 0, which is taken for a "
+                        "requirement the part does not record: a warning, not a failure")
+        chk = Check(t.id, status, avail, t.required, "s", slack, source, message,
+                    subject=t.subject, details=details, margin_unit=t.margin_unit, fix=fix)
+    if t.assumed:
+        # the time available rests on a rule of thumb: no failure (Term.codes)
+        chk = rule_of_thumb(chk)
+        assumed_fix = M.CS_TIMING_ASSUMED_FIX.format(field=t.assumed,
+                                                     what=CS_ASSUMED[t.assumed][0])
+        chk.fix = assumed_fix if chk.fix is None else f"{chk.fix}; {assumed_fix}"
+    return chk
 
 
 #: The requirement of each term, by the key of its details, as the part records it.

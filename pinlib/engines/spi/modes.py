@@ -26,6 +26,11 @@ CS_LEAD_SOURCE = ("controller asserts CS half a clock period before the first SC
                   "when its class records no t_cs_setup (common practice, no source)")
 CS_LAG_SOURCE = ("controller releases CS half a clock period after the last SCLK edge "
                  "when its class records no t_cs_hold (common practice, no source)")
+#: The controller's time pinlib assumes where its class records no value for it, by that
+#: value's field (:attr:`pinlib.engines.spi.budget.Term.assumed`): the time's name and
+#: the source of the assumption.
+CS_ASSUMED = {"t_cs_setup": ("CS lead", CS_LEAD_SOURCE),
+              "t_cs_hold": ("CS lag", CS_LAG_SOURCE)}
 #: Why the figure ``max_clock`` has no number where nothing bounds the clock.
 NO_CLOCK_LIMIT = ("not limited by the parts' data (no timing requirement or f_max "
                   "bounds it; the notes say what the parts do not record)")

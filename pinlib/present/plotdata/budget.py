@@ -33,7 +33,8 @@ class TimingBudgetData:
     status : dict of str to str
         Each path's check status at the design's warning margin. [1]
     sources : dict of str to str
-        The source of each path's requirement. [1]
+        The source of each path's check: its requirement's, and the CS lead or lag
+        assumed where the time available rests on one. [1]
     worst : dict of str to (float, str, str)
         For a path whose check the engine took at a corner of the bus's tolerances worse
         than the board as designed (:func:`pinlib.engines.ppworst.at_worst_corners`):
@@ -173,7 +174,7 @@ def timing_budget_data(bus: Bus, design: Design, *, analysis=None) -> TimingBudg
         margins[path] = margin
         chk = term_check(term, clock, design.warn_margin, analysis.mode.mode)
         status[path] = chk.status
-        sources[path] = term.source or "not recorded by the part: taken as 0"
+        sources[path] = chk.source   # the check's own: it names an assumed CS lead or lag
         c = checks.get((term.id, term.subject))
         if c is not None:
             worst[path] = (float(c.value) - float(c.limit), c.status, c.details["corner"])
