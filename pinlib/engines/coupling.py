@@ -246,8 +246,11 @@ def aggressor_of(coupling: Coupling, results: dict[str, BusResult]) -> Aggressor
     ramp = min(m.t_ramp_rise, m.t_ramp_fall)
     # a driver with no ramp of its own: its edge into the pins alone
     edge = ramp / RAMP_FROM_10_90 if ramp > 0 else la.edge_alone
+    r_drv = min(m.r_rise, m.r_fall)
+    made = ((f"series {format_si(case.rs, 'Ω')} + " if case.rs > 0 else "")
+            + f"driver {format_si(r_drv, 'Ω')}, the stronger of its model's rise and fall")
     return Aggressor(swing=case.v_high - case.v_low, edge_time=edge,
-                     r_source=min(m.r_rise, m.r_fall) + case.rs, c_far=case.c_far)
+                     r_source=r_drv + case.rs, c_far=case.c_far, made=made)
 
 
 def _sweep(coupling, agg, vic, memo: dict, spacings) -> list[bool]:
@@ -354,7 +357,8 @@ def _notes(w: CouplingWorkings) -> list[str]:
     c, a, v = w.coupling, w.aggressor, w.victim
     lo, hi = w.spacing_range
     out = [f"aggressor {c.aggressor_name}: {format_si(a.swing, 'V')} swing, edge "
-           f"{format_si(a.edge_time, 's')} (10-90 %), source {format_si(a.r_source, 'Ω')}",
+           f"{format_si(a.edge_time, 's')} (10-90 %), source {format_si(a.r_source, 'Ω')}"
+           + (f" ({a.made})" if a.made else ""),
            f"victim {c.victim} ({c.segment}): pull-up {format_si(v.r_pullup, 'Ω')} and "
            f"sink {format_si(v.r_sink, 'Ω')}{_sink_text(v)} at the far end, "
            f"{format_si(v.c['near'], 'F')} (one pin) at each end"]

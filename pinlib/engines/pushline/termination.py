@@ -103,21 +103,26 @@ def _auto_series(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
         z0, why = _best_match(a, r_drv, pullup)
         a.rs_ideal = z0 - r_drv
         notes.append(f"auto series resistor: {_fmt(a.rs, 'Ω')} (Z0 {_fmt(z0, 'Ω')} "
-                     f"- r_out {_fmt(r_drv, 'Ω')}{_corner_of(a, r_drv)} = "
-                     f"{_fmt(a.rs_ideal, 'Ω')}, nearest E24{why})")
+                     f"- r_out {_fmt(r_drv, 'Ω')} = {_fmt(a.rs_ideal, 'Ω')}, nearest "
+                     f"E24{why}{_matched_words(a, r_drv)})")
     else:
         a.cases = _cases(a, 0.0, pullup) if bare is None else bare
         notes.append(f"auto series resistor: none (the driver's {_fmt(r_drv, 'Ω')} "
                      f"already matches or exceeds Z0 {_fmt(a.z0, 'Ω')})")
 
 
-def _corner_of(a: LineAnalysis, r_drv: float) -> str:
-    """`` at the fast corner`` when the resistance "auto" matched is a driver's fast
-    corner (``pins.<name>.fast``): the pin's own ``r_out`` then differs from it."""
+def _matched_words(a: LineAnalysis, r_drv: float) -> str:
+    """Whose resistance "auto" matched and how it was made: the mean of a driver's
+    fitted rise and fall (at its fast corner, ``pins.<name>.fast``, where its part states
+    one), which differs from the pin's own ``r_out`` where the fit moved it."""
     for d in a.drivers:
         m = a.models[d.ref]
-        if d.pin.drive != "open-drain" and m.fast is not None and _matched(m) == r_drv:
-            return f" of {d.label} at its fast corner"
+        if d.pin.drive == "open-drain" or _matched(m) != r_drv:
+            continue
+        at = m.fast if m.fast is not None else m
+        corner = " at its fast corner" if m.fast is not None else ""
+        return (f"; r_out: {d.label}{corner}, the mean of its driver model's rise "
+                f"{_fmt(at.r_rise, 'Ω')} and fall {_fmt(at.r_fall, 'Ω')}")
     return ""
 
 

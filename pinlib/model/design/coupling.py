@@ -38,12 +38,16 @@ class Aggressor:
     c_far : float
         What the aggressor drives at its far end (the design file's
         ``load_capacitance``). [F]
+    made : str
+        How ``r_source`` was made where pinlib worked it out (an aggressor line's
+        driver model and series resistor); empty where the design states it. [1]
     """
 
     swing: float
     edge_time: float
     r_source: float
     c_far: float = 0.0
+    made: str = ""
 
 
 @value_class(frozen=True)
