@@ -1205,3 +1205,16 @@ def test_a_change_of_library_folders_reads_as_words_not_python_lists(board):
     assert "library folders differ: builtin → builtin, team" in notes
     assert "built-in parts overridden by team parts differ: (none) → eeprom-i2c" in notes
     assert not any("[" in n or "'" in n for n in notes)
+
+
+def test_a_changed_value_without_a_source_says_so_rather_than_showing_blank():
+    # a value whose source is blank (written "   ") or missing under a datasheet or
+    # measured basis: the change list used to print "source:     [measured]"
+    from pinlib.studies.compare.changes import ValueChange
+
+    old = {"value": 0.4, "unit": "V", "basis": "generic", "source": "class"}
+    blank = ValueChange("pins.sda.v_ol", old, {"value": 0.3, "unit": "V",
+                                               "basis": "measured", "source": "   "})
+    assert blank.format("U2").endswith(", basis: measured, no source named")
+    plain = ValueChange("pins.sda.v_ol", old, {"value": 0.3, "unit": "V", "basis": "estimate"})
+    assert plain.format("U2").endswith(", basis: estimate")

@@ -280,3 +280,40 @@ def test_a_typical_value_beyond_its_limit_is_a_problem_naming_the_line(team, cap
     (team / "t-typ.toml").write_text(TYP_PART.format(c_typ="3.5 pF", f_typ="1 MHz"),
                                      encoding="utf-8")
     assert main(["parts", "check", str(team)]) == 0
+
+
+def test_check_warns_of_a_placed_value_that_claims_a_datasheet_but_names_none(
+        team, tmp_path, capsys):
+    # an invented team part whose c_in says "datasheet" and names no document: parts check
+    # lists it, and pinlib check of a design placing the part says so too
+    (team / "nosrc.toml").write_text("""\
+format = "pinlib.part/1"
+id = "nosrc-target"
+title = "Target without its sources (invented test part)"
+category = "memory"
+extends = "eeprom-i2c"
+provenance = { basis = "estimate", source = "invented test part" }
+
+[pins.sda]
+c_in = { value = "6 pF", basis = "datasheet" }
+""", encoding="utf-8")
+    design = tmp_path / "d.toml"
+    design.write_text(f"""\
+format = "pinlib.design/1"
+title = "unsourced part (invented)"
+library = ["{team.as_posix()}"]
+
+[[bus]]
+id = "b"
+protocol = "i2c"
+supply = "3.3 V"
+trace = {{ length = "5 cm", capacitance = "1 pF/cm" }}
+devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
+  {{ ref = "U2", part = "nosrc-target" }},
+]
+""", encoding="utf-8")
+    main(["check", str(design)])
+    err = capsys.readouterr().err
+    assert "pinlib: warning: nosrc-target:" in err and "field 'pins.sda.c_in'" in err
+    assert "basis 'datasheet' but no source" in err

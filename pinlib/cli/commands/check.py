@@ -285,6 +285,7 @@ def _warn_implausible(design) -> None:
     """Warn about implausible values of the parts the design places (devices, cables and
     cable sections): the check goes on with them, a reviewer should know."""
     from pinlib.library.plausible import part_warnings
+    from pinlib.library.sources import unsourced
 
     ids: dict[str, None] = {}
     for bus in design.buses:
@@ -300,9 +301,18 @@ def _warn_implausible(design) -> None:
             for s in line.sections:
                 if s.part_id:
                     ids[s.part_id] = None
+    lib = design.library
+    files: set = set()
     for pid in ids:
-        for w in part_warnings(design.library.get(pid), design.library):
+        for w in part_warnings(lib.get(pid), lib):
             _warn(f"pinlib: warning: {pid}: " + w.message)
+        # a datasheet or measured basis that names no source, in the part's files
+        for cls in lib.chain(pid):
+            pf = lib.files.get(cls)
+            if pf is not None and pf.path not in files:
+                files.add(pf.path)
+                for e in unsourced(pf):
+                    _warn(f"pinlib: warning: {pid}: " + e.message)
 
 
 def _warn(line: str) -> None:

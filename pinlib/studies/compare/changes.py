@@ -13,6 +13,7 @@ from pinlib.core.errors import InputError
 from pinlib.core.labels import check_label, figure_label, plural_s, shown_figures
 from pinlib.core.quantity import Threshold, format_si, format_threshold
 from pinlib.core.valueclass import value_class
+from pinlib.library.sources import NEEDS_SOURCE
 from pinlib.model.result import beyond_shown, signed_margin_text
 from pinlib.studies.compare.figures import (
     DEFAULT_THRESHOLD,
@@ -283,8 +284,11 @@ class ValueChange:
         shown = self.new if self.new is not None else self.old
         bits = []
         basis = f" [{shown['basis']}]" if shown.get("basis") else ""
-        if shown.get("source"):
-            bits.append(f"source: {shown['source']}{basis}")
+        source = str(shown.get("source") or "").strip()  # a blank one names nothing
+        if source:
+            bits.append(f"source: {source}{basis}")
+        elif shown.get("basis") in NEEDS_SOURCE:
+            bits.append(f"basis: {shown['basis']}, no source named")
         elif basis:
             bits.append(f"basis: {shown['basis']}")
         if shown.get("origin") and shown["origin"] != part_id:
