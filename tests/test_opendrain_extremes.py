@@ -391,3 +391,16 @@ def test_auto_does_not_trade_the_sink_for_the_leakage(tmp_path):
     nm = next(c for c in res.checks if c.id == "noise-margin-high" and c.subject == "SDA")
     assert nm.status == "fail" and "no pull-up meets both" in nm.fix
     assert "at most 823 Ω" in nm.fix
+
+
+def test_a_load_far_beyond_the_mode_gets_no_sizing_advice(tmp_path):
+    # 1 µF on a Fast-mode bus is 2,500 times UM10204 rev. 6 table 10's 400 pF: the advice
+    # had named a buffer splitting it into thousands of segments and amperes of sink
+    res = bus_result(tmp_path, one_bus(extra="1 µF", pullup="2.2 kΩ"))
+    chk = next(c for c in res.checks if c.id == "pullup-window" and c.subject == "SDA")
+    assert chk.status == "fail" and "2500 times" in chk.fix
+    assert "segments" not in chk.fix and "sinking at least" not in chk.fix
+    # ten times the limit or less keeps the full advice (common practice, no source)
+    res = bus_result(tmp_path, one_bus(extra="900 pF", pullup="2.2 kΩ"))
+    chk = next(c for c in res.checks if c.id == "pullup-window" and c.subject == "SDA")
+    assert "segments" in chk.fix

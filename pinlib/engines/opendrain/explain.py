@@ -109,6 +109,13 @@ def _no_fit_advice(lim: OpenDrainLimits, seg_in: SegmentInputs, ln: LineInputs) 
         tips.append(f"no resistor fits: Rp(min) {_f(rp_min, 'Ω')} (weakest sink "
                     f"{label or '—'}) is above Rp(max) "
                     f"{_f(ln.rp_max, 'Ω')} at Cb {_f(ln.cb, 'F')}")
+    if lim.cb_max is not None and ln.cb > FAR_BEYOND_CB * lim.cb_max:
+        # thousands of buffer segments or amperes of sink would read as advice
+        tips.append(f"Cb {_f(ln.cb, 'F')} is {ln.cb / lim.cb_max:.0f} times {lim.label}'s "
+                    f"{_f(lim.cb_max, 'F')}: no pull-up, buffer or driver makes this load an "
+                    "I2C line; check the capacitance entered (extra_capacitance, cable and "
+                    "trace lengths)")
+        return tips
     eff_lo = rp_min / (1 - tol)
     cb_lim = float(pu.cb_limit(lim.tr_max, rp_min, tol, ln.rise_factor))
     tips.append(f"bring Cb below {_f(cb_lim, 'F')} (now {_f(ln.cb, 'F')}: "
@@ -138,6 +145,12 @@ def _no_fit_advice(lim: OpenDrainLimits, seg_in: SegmentInputs, ln: LineInputs) 
         tips.append(f"drivers sinking at least {_f(i_need, 'A')} at {_f(float(d.v_ol[1]), 'V')} "
                     f"(the weakest, {d.tap.label}, is rated {_f(d.i_ol, 'A')})")
     return tips
+
+
+#: A bus capacitance this many times its mode's limit gets no sizing advice, only the
+#: question whether it was entered right (common practice, no source: past it the
+#: buffers and sink currents the advice would name are not parts anyone fits).
+FAR_BEYOND_CB = 10.0
 
 
 #: The one sink model of a line's checks, stated in the v-ol and fall-time details.
