@@ -599,8 +599,11 @@ def test_two_team_parts_with_one_id_is_an_error_naming_both(builtin, tmp_path):
     first = write(one, "x.toml", part("x", "base"))
     second = write(two, "x2.toml", part("x", "base"))
     lib = load_library([one, two])
-    (err,) = lib.problems
+    # each file is named at its own id, the other in its hint (the first had been told
+    # only that it "does not load", by a problem in a file it extends)
+    err, other = lib.problems
     assert err.file == str(second) and str(first) in err.hint and err.field == "id"
+    assert other.file == str(first) and str(second) in other.hint and other.line == 2
 
 
 def test_the_same_folder_twice_is_not_a_duplicate(builtin, tmp_path, monkeypatch):

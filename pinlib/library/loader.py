@@ -576,6 +576,13 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
                     raise err
                 lib.problems.append(err)
                 found[pid].others.append(err)  # the first file's part is not used either
+                first = team_seen[pid]
+                if not any(p.file == str(first) and p.problem == M.DUPLICATE_TEAM_ID
+                           for p in lib.problems):  # and is named at its own id, once
+                    lib.problems.append(LibraryError(
+                        M.DUPLICATE_TEAM_ID, file=str(first),
+                        line=found[pid].line(("id",)), field="id", value=pid,
+                        hint=f"the other is {path}; " + M.DUPLICATE_TEAM_ID_HINT))
                 continue
             if pid in found and found[pid].builtin and is_builtin:
                 err = LibraryError(M.DUPLICATE_BUILTIN_ID, file=str(path),
