@@ -640,9 +640,10 @@ def _merged_raw(pid: str, files: dict[str, PartFile], stack: list[str]):
             if parent == chain[-1]:
                 # a team file of a built-in id that extends "itself", meaning the built-in
                 # class it overrides: that class is out of the library it stands in
-                hint += (f"; a part cannot extend its own id: give this file an id of its "
-                         f"own (id = \"{parent}-team\"), which then extends the class "
-                         f"'{parent}', and place that id")
+                hint += (f"; a part cannot extend its own id: where '{parent}' is a "
+                         f"built-in class to build on, give this file an id of its own "
+                         f"(id = \"{parent}-team\") that extends it, and place that id; "
+                         "else extend the class it is made from")
             raise LibraryError(M.EXTENDS_CYCLE, file=str(pf.path), line=pf.line(("extends",)),
                                field="extends", value=parent, hint=hint)
         if parent not in files:
