@@ -1570,6 +1570,12 @@ def _(env):
     return _fails(lambda e: e.design(I2C_BUS.replace('"3.3 V"', '"0 V"')), env)
 
 
+@case("SUPPLY_TOO_LOW")
+def _(env):
+    # invented test design: a rail written in millivolts
+    return _fails(lambda e: e.design(I2C_BUS.replace('"3.3 V"', '"3.3 mV"')), env)
+
+
 @case("UNKNOWN_NUMBER_SERIES")
 def _(env):
     # one text for the design's pullup_series and for pinlib.core.eseries
@@ -2717,11 +2723,13 @@ lines.reset = { length = "3 cm", geometry = "g" }
 
 
 @case("PIN_VALUE_AT_SUPPLY", lambda: M.PIN_VALUE_AT_SUPPLY.format(
-    part="mcu-3v3", ref="U1", bus="s", vdd="1 nV", where="{design}:10"))
+    part="mcu-5v", ref="U1", bus="s", vdd="500 mV", where="{design}:10"))
 def _(env):
     from pinlib.engines.dispatch import check_design
 
-    design = env.design(SPI_BUS.replace('supply = "3.3 V"', 'supply = "1e-9 V"'))
+    # the lowest rail a design takes: the 5 V controller's VDD - 0.8 V is negative
+    design = env.design(SPI_BUS.replace('supply = "3.3 V"', 'supply = "0.5 V"')
+                        .replace('part = "mcu-3v3"', 'part = "mcu-5v"'))
     err = _fails(lambda e: check_design(design), env)
     return err.message.replace(str(design.path), "{design}")
 
