@@ -542,6 +542,14 @@ def _(env):
     return env.capsys.readouterr().out
 
 
+@case("ABSTRACT_MARKED")
+def _(env):
+    # the built-in library's abstract classes, at the width the kind column is left out
+    env.monkeypatch.setenv("COLUMNS", "80")
+    assert main(["parts", "list"]) == 0
+    return env.capsys.readouterr().out
+
+
 @case("FOLDER_NAMED_BY", M.FOLDER_NAMED_BY.format(source="PINLIB_LIBRARY"))
 def _(env):
     env.monkeypatch.setenv("PINLIB_LIBRARY", str(env.tmp / "gone"))

@@ -103,6 +103,8 @@ MORE_FIELDS = " and {n} more"
 # under a table cut to the terminal's width (pinlib/core/texttable.py)
 COLUMNS_LEFT_OUT = "(not shown at this width: {columns}; a wider terminal or --json shows them)"
 OVERRIDES_LEFT_OUT = "team parts that override a built-in one: {ids}"
+ABSTRACT_MARKED = ("* abstract class: cannot be placed; extend it "
+                   "(pinlib parts new ID --from CLASS)")
 PART_DOES_NOT_VALIDATE = "part '{part}' does not load: {problem}"
 # hints of PART_DOES_NOT_VALIDATE and UNKNOWN_PART
 NAMED_AT = "the part is named at {where}"
