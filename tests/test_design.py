@@ -107,6 +107,11 @@ BAD = {
                                            'part = "t-target", supply = "0 mV" }'),
                            "bus[0].devices[1].supply", 11,
                            ["the supply must be positive (got '0 mV')", "at least 500 mV"]),
+    # invented test design: a format and a title, no bus; it printed "PASS no buses: 0
+    # pass, 0 warn, 0 fail on 0 buses" and exited 0, a passed CI gate over nothing checked
+    "no-bus": ("", "bus", 1,
+               ["the design has no bus, so nothing would be checked",
+                "expected a [[bus]] table", "pinlib new"]),
     # invented test design: a rail written in millivolts was taken, and every level
     # check failed with the supply-range check, the cause, listed last
     "millivolt-supply": (ONE_BUS.replace('"3.3 V"', '"3.3 mV"').replace("PART", "t-target"),

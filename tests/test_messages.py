@@ -1321,6 +1321,18 @@ def _(env):
     return _fails(lambda e: e.design("", head="# a board, to write\n"), env)
 
 
+@case("DESIGN_HAS_NO_BUS")
+def _(env):
+    # invented test design: a format, a title and a board, no [[bus]]
+    return _fails(lambda e: e.design(""), env)
+
+
+@case("DESIGN_HAS_NO_BUS_HINT")
+def _(env):
+    env.write("design.toml", HEAD)
+    return env.cli("check", str(env.tmp / "design.toml"))
+
+
 @case("NOT_A_DESIGN")
 def _(env):
     return _fails(lambda e: e.design(I2C_BUS, head=HEAD.replace("design/1", "design/7")), env)

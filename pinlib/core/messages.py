@@ -81,6 +81,9 @@ QUANTITY_TOO_LONG = "{n} characters: too long for a quantity (at most {limit})"
 NOT_A_PART_FILE = "not a part-class file"
 # loader.py and design/load.py: a file with no key (empty, blank, or comments only)
 FILE_HOLDS_NOTHING = "the file holds nothing (empty, or comments only)"
+DESIGN_HAS_NO_BUS = "the design has no bus, so nothing would be checked"
+DESIGN_HAS_NO_BUS_HINT = ("'pinlib new DESIGN --part U1=PART --part U2=PART' writes a starter "
+                          "design")
 DESIGN_IN_LIBRARY = ("a design file: a library folder holds part files only; keep designs "
                      "in another folder")
 PART_NEEDS_ID = "a part file needs an id"
