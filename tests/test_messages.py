@@ -2389,6 +2389,34 @@ def _(env):
     return _fails(lambda e: capacitance_from_rise(100e-9, 1e3, 10e-12, lo=0.7, hi=0.3), env)
 
 
+@case("LEVELS_TOO_CLOSE")
+def _(env):
+    from pinlib.engines.bench import compare_rise
+    design = env.design(I2C_BUS)
+    return _fails(lambda e: compare_rise(design, "b", 150e-9, 5e-12, levels=(0.3, 0.31)), env)
+
+
+@case("LEVELS_APART", lambda: M.LEVELS_APART.format(apart="5 %"))
+def _(env):
+    env.write("design.toml", HEAD + I2C_BUS)
+    return env.cli("measured", str(env.tmp / "design.toml"), "--bus", "b", "--rise", "150ns",
+                   "--probe", "5pF", "--levels", "29.99999999999,30")
+
+
+@case("BENCH_RISE_RANGE", lambda: M.BENCH_RISE_RANGE.format(lo="100 ps", hi="10 s"))
+def _(env):
+    from pinlib.engines.bench import compare_rise
+    design = env.design(I2C_BUS)
+    return _fails(lambda e: compare_rise(design, "b", 1e30, 10e-12), env).message
+
+
+@case("BENCH_PROBE_RANGE", lambda: M.BENCH_PROBE_RANGE.format(hi="1 nF"))
+def _(env):
+    from pinlib.engines.bench import compare_rise
+    design = env.design(I2C_BUS)
+    return _fails(lambda e: compare_rise(design, "b", 150e-9, 1e-6), env).message
+
+
 @case("RISE_FASTER_THAN_PROBE")
 def _(env):
     from pinlib.physics.pullup import capacitance_from_rise

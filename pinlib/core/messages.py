@@ -375,6 +375,12 @@ NO_RESISTANCES = "no resistances given"
 MUST_NOT_BE_NEGATIVE = "value must not be negative"
 CLOCK_PERIOD_ZERO = "the clock period is zero"
 LEVELS_OUT_OF_RANGE = "measuring levels out of range"
+LEVELS_TOO_CLOSE = "measuring levels too close together"
+LEVELS_APART = ("HI at least {apart} of the rail above LO (closer, an error in either "
+                "level swamps the capacitance the rise gives; common practice)")
+BENCH_RISE_RANGE = ("a rise between {lo} and {hi} (an oscilloscope reads no faster edge, "
+                    "and no bus edge is slower; common practice)")
+BENCH_PROBE_RANGE = "a probe of at most {hi} (common practice: a 1x probe is about 100 pF)"
 RISE_FASTER_THAN_PROBE = "the measured rise is faster than the probe alone allows"
 
 # pinlib/physics/waveform.py
