@@ -557,6 +557,12 @@ def test_new_defaults_to_the_first_library_folder(lib, capsys, monkeypatch, tmp_
     assert code == 0 and (other / "x2.toml").exists()
 
 
+def test_show_an_id_in_capitals_names_the_closest(lib, capsys):
+    # invented test design: "parts show EEPROM" got no suggestion, "parts show eeprm" did
+    code, _, err = run(capsys, "parts", "show", "EEPROM", "--library", "team")
+    assert code == 2 and "closest in the library: eeprom" in " ".join(err.split())
+
+
 def test_new_refusals(lib, capsys):
     code, _, err = run(capsys, "parts", "new", "eeprom", "--from", "base", "--into", "team",
                        "--library", "team")

@@ -68,6 +68,9 @@ lines.sclk = { length = "10 cm", capacitance = "1 pF/cm", delay = "60 ps/cm" }
 BAD = {
     "unknown-part": (ONE_BUS.replace("PART", "t-targit"), "bus[0].devices[1].part", 11,
                      ["unknown part", "'t-targit'", "closest in the library: t-target"]),
+    # invented test design: the id in capitals got no suggestion
+    "unknown-part-case": (ONE_BUS.replace("PART", "T-TARGET"), "bus[0].devices[1].part", 11,
+                          ["unknown part", "'T-TARGET'", "closest in the library: t-target"]),
     "no-pins": (ONE_BUS.replace("PART", "t-spi-only"), "bus[0].devices[1].part", 11,
                 ["has no i2c-sda pin", "t-spi-only"]),
     "no-controller": (ONE_BUS.replace('{ ref = "U1", part = "t-ctrl-3v3", role = "controller" },\n',
