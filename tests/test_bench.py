@@ -134,6 +134,47 @@ def test_bad_levels_are_refused(design, capsys):
         assert "expected 0 <= LO < HI < 100, in % of the rail" in capsys.readouterr().err
 
 
+@pytest.mark.parametrize(("argv", "field", "words"), [
+    # invented test design: levels 1e-11 % apart gave "measured Cb 478 F"
+    (["--rise", "150ns", "--probe=5pF", "--levels", "29.99999999999,30"], "--levels",
+     ["measuring levels too close together", "(got '29.99999999999%,30%')",
+      "HI at least 5 % of the rail above LO"]),
+    # a rise of 1e30 s gave "measured Cb 536e24 F", past every SI prefix
+    (["--rise", "1e30s", "--probe", "10pF"], "--rise",
+     ["outside the plausible range (got '1e30 s')", "between 100 ps and 10 s"]),
+    (["--rise", "1e-30s", "--probe", "10pF"], "--rise", ["(got '1e-30 s')"]),
+    (["--rise", "150ns", "--probe", "1e30F"], "--probe",
+     ["outside the plausible range (got '1e30 F')", "at most 1 nF"]),
+])
+def test_a_reading_no_bench_gives_is_refused_naming_its_option(design, capsys, argv, field,
+                                                               words):
+    # common practice, no source: the ranges of RISE_RANGE, PROBE_MAX, LEVELS_MIN_APART
+    assert main(["measured", str(design), "--bus", "i2c0", *argv]) == 2
+    out, err = capsys.readouterr()
+    err = " ".join(err.split())
+    assert out == "" and f"field '{field}'" in err and "Traceback" not in err
+    for w in words:
+        assert w in err, (w, err)
+
+
+def test_levels_just_far_enough_apart_and_the_ends_of_the_rise_range_are_taken(design):
+    # invented test design: 10,15 are 5 % apart however the floats round 0.15 - 0.1
+    d = load_design(design)
+    for rise, levels in ((10.0, (0.10, 0.15)), (100e-12, (0.94, 0.99))):
+        got = compare_rise(d, "i2c0", rise, 0.0, levels=levels)
+        assert got.verdict in ("above", "below")
+
+
+def test_no_capacitance_is_shown_past_the_si_prefixes():
+    # invented test design: the text never writes an exponent ("536e24 F"); JSON keeps
+    # the number
+    from pinlib.engines.bench import _cap
+
+    assert _cap(5.36e26) == "> 1000 TF" and _cap(-5.36e26) == "< -1000 TF"
+    assert _cap(1e-25) == "< 1 aF" and _cap(-1e-25) == "> -1 aF"
+    assert _cap(0.0) == "0 pF" and _cap(83.1e-12) == "83.1 pF" and _cap(79.5e-6) == "79.5 µF"
+
+
 def test_reading_errors_name_the_option_and_its_value_in_units(design, capsys):
     # the physics names its parameters t_measured, c_probe; the command's user gave
     # --rise and --probe, in units

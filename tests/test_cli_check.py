@@ -526,3 +526,37 @@ def test_the_gpio_example_reads_at_80_columns(capsys, monkeypatch):
         "PASS reset (GPIO)", "PASS fpga-enable (GPIO)",
         "PASS Controller board, reset and enable lines (invented example)"]
     assert "(reset rise)" in seen[False] and "lines.reset.pullup" in seen[True]
+
+
+def test_a_fix_names_a_few_receivers_and_counts_the_rest(tmp_path, capsys, monkeypatch):
+    # invented test design: 30 EEPROMs under a 100 Ω pull-up, whose low level every
+    # receiver reads as high; at 1,024 the fix listed "receivers U1, U2, ... U1024" over
+    # 87 lines
+    devices = "\n".join(f'  {{ ref = "U{i}", part = "eeprom-i2c" }},' for i in range(2, 32))
+    path = tmp_path / "many.toml"
+    path.write_text(f"""format = "pinlib.design/1"
+title = "many targets (invented)"
+
+[[bus]]
+id = "i2c0"
+protocol = "i2c"
+mode = "fast"
+supply = "3.3 V"
+pullup = "100 Ω"
+trace = {{ length = "5 cm", capacitance = "1 pF/cm" }}
+devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
+{devices}
+]
+""", encoding="utf-8")
+    monkeypatch.setenv("COLUMNS", "80")
+    assert main(["check", str(path)]) == 1
+    out = " ".join(capsys.readouterr().out.split())
+    assert "receivers U1, U2, U3, U4, U5, U6, U7, U8 and 23 more read the low level" in out
+    assert "U31" not in out
+    main(["check", str(path), "--json"])
+    data = json.loads(capsys.readouterr().out)
+    vol = [c for b in data["buses"] for c in b.get("checks", []) if c["id"] == "v-ol"]
+    vol += [c for b in data["buses"] for s in b.get("segments", []) for c in s["checks"]
+            if c["id"] == "v-ol"]
+    assert vol and len(vol[0]["details"]["receivers"]) == 31  # the JSON keeps every one

@@ -755,6 +755,24 @@ def test_swap_over_designs_names_an_old_part_no_library_holds(tmp_path, capsys):
     assert "no position to change" in capsys.readouterr().out
 
 
+def test_swap_over_designs_names_a_new_part_no_library_holds_once_up_front(tmp_path, capsys):
+    # invented test design: "pinlib swap --part eeprom-i2c=eeprom-i2cc a.toml b.toml" said
+    # "not checked: ... unknown part" under each design, after the substitution's header,
+    # and each design's error again on standard error
+    a, b = _board(tmp_path, "a.toml"), _board(tmp_path, "b.toml")
+    before = a.read_text(encoding="utf-8")
+    assert main(["swap", "--part", "eeprom-i2c=EEPROM-i2cc", str(a), str(b)]) == 2
+    capsys.readouterr()  # the pair's form is refused as written (a part id is lowercase)
+    assert main(["swap", "--part", "eeprom-i2c=eeprom-i2cc", str(a), str(b), "--write"]) == 2
+    out, err = capsys.readouterr()
+    assert out == ""
+    err = " ".join(err.split())
+    assert err.count("pinlib: error:") == 1 and "not checked" not in err
+    assert "field '--part'" in err and "(got 'eeprom-i2cc')" in err
+    assert "closest: eeprom-i2c" in err
+    assert a.read_text(encoding="utf-8") == before
+
+
 def test_many_designs_in_a_deep_folder_keep_their_names_and_counts_at_80_columns(
         tmp_path, capsys, monkeypatch):
     # designs in a folder of 76 characters read at 80 columns as

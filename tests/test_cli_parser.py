@@ -128,6 +128,36 @@ def test_an_unknown_option_is_named_before_a_missing_required_argument(argv, unk
     assert "required" in err  # what is missing is still said
 
 
+@pytest.mark.parametrize("argv, usage, said", [
+    # invented test design: every required argument given and one option misspelt: the
+    # program's usage ("usage: pinlib [-h] [--version] COMMAND ...") stood over it
+    (["report", "board.toml", "--html", "x.html", "--markdown", "x.md"], "pinlib report",
+     "unrecognized arguments: --markdown x.md; did you mean '--md'?"),
+    (["check", "board.toml", "--jsn"], "pinlib check",
+     "unrecognized arguments: --jsn; did you mean '--json'?"),
+    (["parts", "list", "--categry", "memory"], "pinlib parts list",
+     "unrecognized arguments: --categry memory; did you mean '--category'?"),
+    (["report", "board.toml", "--markdown", "review.md"], "pinlib report",
+     "is required; did you mean '--md'?"),
+    # nothing close: no guess
+    (["check", "board.toml", "--zzzzzz"], "pinlib check", "unrecognized arguments: --zzzzzz"),
+    (["--bogus"], "pinlib", "unrecognized arguments: --bogus"),
+])
+def test_an_unknown_option_is_answered_with_its_command_s_usage(argv, usage, said, capsys,
+                                                                monkeypatch):
+    monkeypatch.setenv("COLUMNS", "80")
+    for parser in (build_parser(), build_parser(chosen_command(argv) or "")):
+        with pytest.raises(SystemExit) as exit_:
+            parser.parse_args(argv)
+        assert exit_.value.code == 2
+        err = capsys.readouterr().err
+        lines = err.splitlines()
+        assert lines[0].startswith(f"usage: {usage} ") and all(len(x) <= 80 for x in lines)
+        assert f"{usage}: error: " in err and said in " ".join(err.split())
+        if "zzz" in said or "bogus" in said:
+            assert "did you mean" not in err
+
+
 def test_a_value_or_a_known_option_is_not_called_unknown(capsys):
     # an option's value that starts with a minus, an abbreviation, a negative quantity
     with pytest.raises(SystemExit):

@@ -68,6 +68,9 @@ lines.sclk = { length = "10 cm", capacitance = "1 pF/cm", delay = "60 ps/cm" }
 BAD = {
     "unknown-part": (ONE_BUS.replace("PART", "t-targit"), "bus[0].devices[1].part", 11,
                      ["unknown part", "'t-targit'", "closest in the library: t-target"]),
+    # invented test design: the id in capitals got no suggestion
+    "unknown-part-case": (ONE_BUS.replace("PART", "T-TARGET"), "bus[0].devices[1].part", 11,
+                          ["unknown part", "'T-TARGET'", "closest in the library: t-target"]),
     "no-pins": (ONE_BUS.replace("PART", "t-spi-only"), "bus[0].devices[1].part", 11,
                 ["has no i2c-sda pin", "t-spi-only"]),
     "no-controller": (ONE_BUS.replace('{ ref = "U1", part = "t-ctrl-3v3", role = "controller" },\n',
@@ -102,11 +105,33 @@ BAD = {
     "negative-supply": (ONE_BUS.replace('"3.3 V"', '"-3.3 V"').replace("PART", "t-target"),
                         "bus[0].supply", 8,
                         ["the supply must be positive (got '-3.3 V')",
-                         "expected more than 0 V and at most 100 V"]),
+                         "expected at least 500 mV and at most 100 V"]),
     "zero-device-supply": (ONE_BUS.replace('part = "PART" }',
                                            'part = "t-target", supply = "0 mV" }'),
                            "bus[0].devices[1].supply", 11,
-                           ["the supply must be positive (got '0 mV')", "more than 0 V"]),
+                           ["the supply must be positive (got '0 mV')", "at least 500 mV"]),
+    # invented test design: a format and a title, no bus; it printed "PASS no buses: 0
+    # pass, 0 warn, 0 fail on 0 buses" and exited 0, a passed CI gate over nothing checked
+    "no-bus": ("", "bus", 1,
+               ["the design has no bus, so nothing would be checked",
+                "expected a [[bus]] table", "pinlib new"]),
+    # invented test design: a rail written in millivolts was taken, and every level
+    # check failed with the supply-range check, the cause, listed last
+    "millivolt-supply": (ONE_BUS.replace('"3.3 V"', '"3.3 mV"').replace("PART", "t-target"),
+                         "bus[0].supply", 8,
+                         ["implausibly low for a logic rail (got '3.3 mV')",
+                          "expected at least 500 mV and at most 100 V",
+                          "did you mean '3.3 V'?"]),
+    "millivolt-device-supply": (ONE_BUS.replace('part = "PART" }',
+                                                'part = "t-target", supply = "1.8 mV" }'),
+                                "bus[0].devices[1].supply", 11,
+                                ["implausibly low for a logic rail (got '1.8 mV')",
+                                 "did you mean '1.8 V'?"]),
+    # a rail no unit slip explains gets no guess
+    "tiny-supply": (ONE_BUS.replace('"3.3 V"', '"0.0000001 V"').replace("PART", "t-target"),
+                    "bus[0].supply", 8,
+                    ["implausibly low for a logic rail (got '0.0000001 V')",
+                     "expected at least 500 mV"]),
     "tolerance-too-wide": (ONE_BUS.replace('supply = "3.3 V"',
                                            'supply = "3.3 V"\nsupply_tolerance = "60 %"')
                            .replace("PART", "t-target"), "bus[0].supply_tolerance", 9,

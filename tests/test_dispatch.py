@@ -34,7 +34,7 @@ protocol = "spi"
 clock = "20 MHz"
 supply = "{supply}"
 devices = [
-  {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
+  {{ ref = "U1", part = "{controller}", role = "controller" }},
   {{ ref = "U7", part = "t-flash" }},
 ]
 lines.sclk = {{ length = "6 cm", geometry = "g" }}
@@ -53,12 +53,13 @@ extends = "nor-flash-spi"
 """
 
 
-def _check(tmp_path, *, supply="3.3 V", pin='r_out = { value = "35 Ω", source = "test" }'):
+def _check(tmp_path, *, supply="3.3 V", pin='r_out = { value = "35 Ω", source = "test" }',
+           controller="mcu-3v3"):
     (tmp_path / "team").mkdir(exist_ok=True)
     (tmp_path / "team" / "t-flash.toml").write_text(PART.format(pin=textwrap.dedent(pin)),
                                                      encoding="utf-8")
     design = tmp_path / "board.toml"
-    design.write_text(DESIGN.format(supply=supply), encoding="utf-8")
+    design.write_text(DESIGN.format(supply=supply, controller=controller), encoding="utf-8")
     with warnings.catch_warnings():
         warnings.simplefilter("error")  # no RuntimeWarning on the way either
         with pytest.raises(PinlibError) as info:
@@ -80,11 +81,12 @@ def test_a_pin_value_refused_at_the_supply_names_the_part_file_and_line(tmp_path
 
 
 def test_a_supply_too_low_for_a_part_names_the_pin_and_the_bus_line(tmp_path):
-    # an SPI supply of 1 nV: VDD - 0.4 V is negative; once named no file
-    err, design = _check(tmp_path, supply="1e-9 V")
-    assert err.file.endswith("mcu-3v3.toml") and err.field == "pins.sclk.v_oh"
+    # an SPI supply of 0.5 V (the lowest rail a design takes): the 5 V controller's
+    # VDD - 0.8 V is negative; once named no file
+    err, design = _check(tmp_path, supply="0.5 V", controller="mcu-5v")
+    assert err.file.endswith("mcu-5v.toml") and err.field == "pins.sclk.v_oh"
     assert err.line is not None
-    assert f"at its supply 1 nV ({design}:11)" in err.message
+    assert f"at its supply 500 mV ({design}:11)" in err.message
 
 
 def test_any_other_engine_error_is_placed_at_the_bus(tmp_path, monkeypatch):
@@ -102,7 +104,7 @@ def test_any_other_engine_error_is_placed_at_the_bus(tmp_path, monkeypatch):
 def test_stripline_spacing_below_the_copper_is_refused_at_its_line(tmp_path):
     # once: "field 't': parameter 't' is out of range", no file
     design = tmp_path / "board.toml"
-    design.write_text(DESIGN.format(supply="3.3 V").replace(
+    design.write_text(DESIGN.format(supply="3.3 V", controller="mcu-3v3").replace(
         'kind = "microstrip"\nwidth = "0.2 mm"\nheight = "0.18 mm"',
         'kind = "stripline"\nwidth = "0.2 mm"\nspacing = "0.02 mm"\nthickness = "35 µm"'),
         encoding="utf-8")
@@ -117,7 +119,7 @@ def test_stripline_spacing_below_the_copper_is_refused_at_its_line(tmp_path):
 def test_a_device_supply_is_named_where_the_design_sets_it(tmp_path):
     # a doubled device list whose devices carry their own supply: 0 V is refused at the
     # device's line; a supply too low for the part's levels names that line in the hint
-    board = DESIGN.format(supply="3.3 V").replace(
+    board = DESIGN.format(supply="3.3 V", controller="mcu-3v3").replace(
         '{ ref = "U7", part = "t-flash" },',
         '{ ref = "U7", part = "t-flash", supply = "0 V" },\n'
         '  { ref = "U8", part = "t-flash", supply = "0 V" },')
@@ -125,13 +127,16 @@ def test_a_device_supply_is_named_where_the_design_sets_it(tmp_path):
     design.write_text(board, encoding="utf-8")
     (tmp_path / "team").mkdir()
     (tmp_path / "team" / "t-flash.toml").write_text(
-        PART.format(pin='r_out = { value = "35 Ω", source = "test" }'), encoding="utf-8")
+        PART.format(pin='r_out = { value = "35 Ω", source = "test" }\n'
+                        'v_oh = { value = "VDD - 0.8 V", source = "test" }'),
+        encoding="utf-8")
     with pytest.raises(PinlibError) as info:
         load_design(design)
     err = info.value
     assert (err.file, err.line, err.field) == (str(design), 18, "bus[0].devices[1].supply")
-    design.write_text(board.replace('"0 V"', '"1e-12 V"'), encoding="utf-8")
+    # the lowest rail a design takes, 0.5 V, under the invented part's VDD - 0.8 V
+    design.write_text(board.replace('"0 V"', '"0.5 V"'), encoding="utf-8")
     with pytest.raises(PinlibError) as info:
         check_design(load_design(design))
     assert info.value.file.endswith(".toml") and info.value.line
-    assert f"at its supply 1 pV ({design}:18)" in info.value.message
+    assert f"at its supply 500 mV ({design}:18)" in info.value.message

@@ -14,7 +14,9 @@ import pytest
 
 from pinlib.core.labels import (
     FIGURES,
+    and_list,
     check_label,
+    few_named,
     figure_label,
     humanize,
     note_label,
@@ -159,3 +161,14 @@ def test_counted_nouns_take_plural_s_not_an_inline_rule():
             for text in [path.read_text(encoding="utf-8")]
             for m in inline.finditer(text)]
     assert not hits, hits
+
+
+def test_a_long_list_of_names_names_the_first_and_counts_the_rest():
+    # invented test design: a bus of 1,024 targets listed every one in a fix, over 87 lines
+    refs = [f"U{i}" for i in range(1, 1025)]
+    assert few_named(refs) == "U1, U2, U3, U4, U5, U6, U7, U8 and 1,016 more"
+    assert few_named(refs[:8]) == "U1, U2, U3, U4, U5, U6, U7, U8"
+    assert few_named(["U2"]) == "U2" and few_named([]) == ""
+    assert few_named(refs, limit=2, conjunction="or") == "U1, U2 or 1,022 more"
+    assert and_list(refs[:3]) == "U1, U2 and U3"
+    assert and_list(refs[:9]) == "U1, U2, U3, U4, U5, U6, U7, U8 and 1 more"

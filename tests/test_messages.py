@@ -542,6 +542,14 @@ def _(env):
     return env.capsys.readouterr().out
 
 
+@case("ABSTRACT_MARKED")
+def _(env):
+    # the built-in library's abstract classes, at the width the kind column is left out
+    env.monkeypatch.setenv("COLUMNS", "80")
+    assert main(["parts", "list"]) == 0
+    return env.capsys.readouterr().out
+
+
 @case("FOLDER_NAMED_BY", M.FOLDER_NAMED_BY.format(source="PINLIB_LIBRARY"))
 def _(env):
     env.monkeypatch.setenv("PINLIB_LIBRARY", str(env.tmp / "gone"))
@@ -1325,6 +1333,18 @@ def _(env):
     return _fails(lambda e: e.design("", head="# a board, to write\n"), env)
 
 
+@case("DESIGN_HAS_NO_BUS")
+def _(env):
+    # invented test design: a format, a title and a board, no [[bus]]
+    return _fails(lambda e: e.design(""), env)
+
+
+@case("DESIGN_HAS_NO_BUS_HINT")
+def _(env):
+    env.write("design.toml", HEAD)
+    return env.cli("check", str(env.tmp / "design.toml"))
+
+
 @case("NOT_A_DESIGN")
 def _(env):
     return _fails(lambda e: e.design(I2C_BUS, head=HEAD.replace("design/1", "design/7")), env)
@@ -1580,6 +1600,12 @@ def _(env):
 @case("SUPPLY_NOT_POSITIVE")
 def _(env):
     return _fails(lambda e: e.design(I2C_BUS.replace('"3.3 V"', '"0 V"')), env)
+
+
+@case("SUPPLY_TOO_LOW")
+def _(env):
+    # invented test design: a rail written in millivolts
+    return _fails(lambda e: e.design(I2C_BUS.replace('"3.3 V"', '"3.3 mV"')), env)
 
 
 @case("UNKNOWN_NUMBER_SERIES")
@@ -2375,6 +2401,34 @@ def _(env):
     return _fails(lambda e: capacitance_from_rise(100e-9, 1e3, 10e-12, lo=0.7, hi=0.3), env)
 
 
+@case("LEVELS_TOO_CLOSE")
+def _(env):
+    from pinlib.engines.bench import compare_rise
+    design = env.design(I2C_BUS)
+    return _fails(lambda e: compare_rise(design, "b", 150e-9, 5e-12, levels=(0.3, 0.31)), env)
+
+
+@case("LEVELS_APART", lambda: M.LEVELS_APART.format(apart="5 %"))
+def _(env):
+    env.write("design.toml", HEAD + I2C_BUS)
+    return env.cli("measured", str(env.tmp / "design.toml"), "--bus", "b", "--rise", "150ns",
+                   "--probe", "5pF", "--levels", "29.99999999999,30")
+
+
+@case("BENCH_RISE_RANGE", lambda: M.BENCH_RISE_RANGE.format(lo="100 ps", hi="10 s"))
+def _(env):
+    from pinlib.engines.bench import compare_rise
+    design = env.design(I2C_BUS)
+    return _fails(lambda e: compare_rise(design, "b", 1e30, 10e-12), env).message
+
+
+@case("BENCH_PROBE_RANGE", lambda: M.BENCH_PROBE_RANGE.format(hi="1 nF"))
+def _(env):
+    from pinlib.engines.bench import compare_rise
+    design = env.design(I2C_BUS)
+    return _fails(lambda e: compare_rise(design, "b", 150e-9, 1e-6), env).message
+
+
 @case("RISE_FASTER_THAN_PROBE")
 def _(env):
     from pinlib.physics.pullup import capacitance_from_rise
@@ -2729,11 +2783,13 @@ lines.reset = { length = "3 cm", geometry = "g" }
 
 
 @case("PIN_VALUE_AT_SUPPLY", lambda: M.PIN_VALUE_AT_SUPPLY.format(
-    part="mcu-3v3", ref="U1", bus="s", vdd="1 nV", where="{design}:10"))
+    part="mcu-5v", ref="U1", bus="s", vdd="500 mV", where="{design}:10"))
 def _(env):
     from pinlib.engines.dispatch import check_design
 
-    design = env.design(SPI_BUS.replace('supply = "3.3 V"', 'supply = "1e-9 V"'))
+    # the lowest rail a design takes: the 5 V controller's VDD - 0.8 V is negative
+    design = env.design(SPI_BUS.replace('supply = "3.3 V"', 'supply = "0.5 V"')
+                        .replace('part = "mcu-3v3"', 'part = "mcu-5v"'))
     err = _fails(lambda e: check_design(design), env)
     return err.message.replace(str(design.path), "{design}")
 

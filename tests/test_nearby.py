@@ -18,3 +18,14 @@ def test_closest_hint_is_none_when_nothing_is_close():
     # a looser cutoff admits a weaker match
     assert nearby.closest_hint("cap", ["c_in"], cutoff=0.4) is None
     assert nearby.closest_hint("cin", ["c_in"], cutoff=0.4) == "closest: c_in"
+
+
+def test_letter_case_does_not_count_against_a_name():
+    # invented test design: "EEPROM-I2C" (the part's id in capitals) found nothing close,
+    # where "eeprom-i2cc" found eeprom-i2c; names come back as written
+    names = ["eeprom-i2c", "rtc-i2c", "adc-i2c", "Mixed-Case"]
+    assert nearby.closest("EEPROM-I2C", names)[0] == "eeprom-i2c"
+    assert nearby.closest("mixed-case", names) == ["Mixed-Case"]
+    assert nearby.closest_hint("V_IL", ["v_il", "leakage"]) == "closest: v_il"
+    # two names alike but for case are both offered, up to n in all
+    assert nearby.closest("ab", ["AB", "ab", "Ab", "abc"], n=3) == ["AB", "ab", "Ab"]

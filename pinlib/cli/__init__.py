@@ -57,6 +57,10 @@ the real board. Standards, local codes and licensed practice prevail.
 _NEGATIVE_VALUE = re.compile(r"^-\.?\d")
 
 
+#: The namespace attribute naming the parser that left words unread (:class:`_Parser`).
+_LEFT_BY = "_pinlib_left_by"
+
+
 class _Parser(argparse.ArgumentParser):
     """argparse's parser, its usage errors wrapped to a terminal as pinlib's own.
 
@@ -76,7 +80,35 @@ class _Parser(argparse.ArgumentParser):
     def parse_known_args(self, args=None, namespace=None):
         # the words this parser reads, for error(): a subcommand's parser gets its own
         self._given = list(sys.argv[1:] if args is None else args)
-        return super().parse_known_args(args, namespace)
+        parsed, extras = super().parse_known_args(args, namespace)
+        # the innermost parser left words unread first: its usage and options are the
+        # ones an unknown word is answered with (argparse answered with the program's)
+        if extras and getattr(parsed, _LEFT_BY, None) is None:
+            setattr(parsed, _LEFT_BY, self)
+        return parsed, extras
+
+    def parse_args(self, args=None, namespace=None):
+        parsed, extras = self.parse_known_args(args, namespace)
+        if extras:
+            leaf = getattr(parsed, _LEFT_BY, None) or self
+            leaf.error(argparse._("unrecognized arguments: %s") % " ".join(extras))
+        if hasattr(parsed, _LEFT_BY):
+            delattr(parsed, _LEFT_BY)
+        return parsed
+
+    def _suggestions(self, unknown: list[str]) -> list[str]:
+        """"did you mean '--md'?" for each unknown option close to one of this parser's
+        own (``--markdown``, ``--jsn``)."""
+        from pinlib.core import messages as M
+        from pinlib.core.nearby import closest
+
+        options = [k for k in self._option_string_actions if k.startswith("--")]
+        out = []
+        for arg in unknown:
+            near = closest(arg.split("=", 1)[0], options, n=1, cutoff=0.5)
+            if near:
+                out.append(M.DID_YOU_MEAN.format(name=near[0]))
+        return out
 
     def _unknown_options(self) -> list[str]:
         """The words given to this parser that look like options it does not know
@@ -110,10 +142,14 @@ class _Parser(argparse.ArgumentParser):
         # required: the word it did not know comes first
         required = (argparse._("the following arguments are required: %s").split("%s")[0],
                     argparse._("one of the arguments %s is required").split("%s")[0])
+        unrecognized = argparse._("unrecognized arguments: %s").split("%s")[0]
         unknown = self._unknown_options() if message.startswith(required) else []
         if unknown:
             message = (argparse._("unrecognized arguments: %s") % " ".join(unknown)
                        + f"; {message}")
+        elif message.startswith(unrecognized):
+            unknown = self._unknown_options()
+        message = "; ".join([message, *self._suggestions(unknown)])
         self.print_usage(sys.stderr)
         self.exit(2, fitted(f"{self.prog}: error: {message}", sys.stderr) + "\n")
 

@@ -145,10 +145,29 @@ def counted(template: str, n: int, **fields) -> str:
 
 def and_list(words, conjunction: str = "and") -> str:
     """``["U2", "U3", "U4"]`` -> ``"U2, U3 and U4"`` (or ``conjunction`` in place of
-    "and"); one word alone; "" for none."""
+    "and"); one word alone; "" for none; more than :data:`NAMED_AT_MOST` the first of
+    them and a count of the rest (:func:`few_named`)."""
     words = [str(w) for w in words]
+    if len(words) > NAMED_AT_MOST:
+        return few_named(words, conjunction=conjunction)
     return (", ".join(words[:-1]) + f" {conjunction} {words[-1]}" if len(words) > 1
             else "".join(words))
+
+
+#: The most names a message lists before it counts the rest (:func:`few_named`): a bus of
+#: 1,024 targets listed them all over 87 lines of a fix.
+NAMED_AT_MOST = 8
+
+
+def few_named(words, limit: int = NAMED_AT_MOST, conjunction: str = "and") -> str:
+    """Names for a message, as written one after another (``"U2, U3, U4"``); more than
+    ``limit`` are the first ``limit`` and a count of the rest (``"U2, U3, ..., U9 and
+    1,016 more"``), so a long list stays a line.  Give them in the order that matters
+    (the worst first): the first are the ones named."""
+    words = [str(w) for w in words]
+    if len(words) <= limit:
+        return ", ".join(words)
+    return ", ".join(words[:limit]) + f" {conjunction} {len(words) - limit:,} more"
 
 
 def humanize(ident: str) -> str:

@@ -81,6 +81,9 @@ QUANTITY_TOO_LONG = "{n} characters: too long for a quantity (at most {limit})"
 NOT_A_PART_FILE = "not a part-class file"
 # loader.py and design/load.py: a file with no key (empty, blank, or comments only)
 FILE_HOLDS_NOTHING = "the file holds nothing (empty, or comments only)"
+DESIGN_HAS_NO_BUS = "the design has no bus, so nothing would be checked"
+DESIGN_HAS_NO_BUS_HINT = ("'pinlib new DESIGN --part U1=PART --part U2=PART' writes a starter "
+                          "design")
 DESIGN_IN_LIBRARY = ("a design file: a library folder holds part files only; keep designs "
                      "in another folder")
 PART_NEEDS_ID = "a part file needs an id"
@@ -103,6 +106,8 @@ MORE_FIELDS = " and {n} more"
 # under a table cut to the terminal's width (pinlib/core/texttable.py)
 COLUMNS_LEFT_OUT = "(not shown at this width: {columns}; a wider terminal or --json shows them)"
 OVERRIDES_LEFT_OUT = "team parts that override a built-in one: {ids}"
+ABSTRACT_MARKED = ("* abstract class: cannot be placed; extend it "
+                   "(pinlib parts new ID --from CLASS)")
 PART_DOES_NOT_VALIDATE = "part '{part}' does not load: {problem}"
 # hints of PART_DOES_NOT_VALIDATE and UNKNOWN_PART
 NAMED_AT = "the part is named at {where}"
@@ -230,6 +235,7 @@ DEVICES_IN_SEGMENTS = "devices go in the segments when a bus has segments"
 KEY_IN_SEGMENTS = "{key} goes in the segments when a bus has segments"
 BUS_NEEDS_PULLUP_SUPPLY = "a bus needs its pull-up supply"
 SUPPLY_NOT_POSITIVE = "the supply must be positive"
+SUPPLY_TOO_LOW = "implausibly low for a logic rail"
 BUS_NEEDS_CONTROLLER = "a bus needs a controller"
 SPI_ONE_CONTROLLER = "a second controller on an SPI bus"
 CONTROLLER_CANNOT_DRIVE = "a controller must pull {signal} low, and this part cannot"
@@ -369,6 +375,12 @@ NO_RESISTANCES = "no resistances given"
 MUST_NOT_BE_NEGATIVE = "value must not be negative"
 CLOCK_PERIOD_ZERO = "the clock period is zero"
 LEVELS_OUT_OF_RANGE = "measuring levels out of range"
+LEVELS_TOO_CLOSE = "measuring levels too close together"
+LEVELS_APART = ("HI at least {apart} of the rail above LO (closer, an error in either "
+                "level swamps the capacitance the rise gives; common practice)")
+BENCH_RISE_RANGE = ("a rise between {lo} and {hi} (an oscilloscope reads no faster edge, "
+                    "and no bus edge is slower; common practice)")
+BENCH_PROBE_RANGE = "a probe of at most {hi} (common practice: a 1x probe is about 100 pF)"
 RISE_FASTER_THAN_PROBE = "the measured rise is faster than the probe alone allows"
 
 # pinlib/physics/waveform.py

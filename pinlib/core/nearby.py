@@ -14,10 +14,15 @@ __all__ = ["closest", "closest_hint"]
 
 def closest(word: str, names: Iterable[str], *, n: int = 3, cutoff: float = 0.5) -> list[str]:
     """Up to ``n`` of ``names`` most like ``word``, best first, each at least ``cutoff``
-    alike (0 to 1)."""
+    alike (0 to 1).  Letter case does not count against a name ("EEPROM-I2C" finds
+    "eeprom-i2c", the closest of all); the names are given back as written."""
     import difflib
 
-    return difflib.get_close_matches(word, list(names), n=n, cutoff=cutoff)
+    written: dict[str, list[str]] = {}
+    for name in names:
+        written.setdefault(str(name).casefold(), []).append(name)
+    near = difflib.get_close_matches(str(word).casefold(), list(written), n=n, cutoff=cutoff)
+    return [name for key in near for name in written[key]][:n]
 
 
 def closest_hint(word: str, names: Iterable[str], *, cutoff: float = 0.5) -> str | None:

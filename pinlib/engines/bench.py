@@ -53,14 +53,36 @@ CB_UNMODELLED_MAX = 10e-9
 #: Common practice, no source.
 CB_MIN = 1e-12
 
+#: The rise times a reading is taken for: an oscilloscope reads no edge faster than
+#: 100 ps, and a rise over 10 s is on no time base a bus edge is read with; outside, a
+#: reading is a slip ("1e30s").  Within it a reading whose Cb no board holds (1 s, the
+#: wrong time base) warns (:func:`_implausible`).  Common practice, no source.
+RISE_RANGE = (100e-12, 10.0)
+#: The probes a reading is taken with: passive and active probes load a line with well
+#: under 1 nF (a 1x passive probe and its cable are about 100 pF).  Common practice, no
+#: source.
+PROBE_MAX = 1e-9
+#: The least distance between the two levels a rise is read between, as a fraction of the
+#: rail: closer, the reading's error in either level swamps the capacitance it gives
+#: (levels 29.99999999999 % and 30 % gave 478 F).  Common practice, no source.
+LEVELS_MIN_APART = 0.05
+
 _CB_HIGH_BASIS = "common practice, no source: a board's bus holds tens to hundreds of pF"
 _CB_LOW_BASIS = "common practice, no source: one part's pin alone adds a few pF"
 
 
 def _cap(value: float) -> str:
     """A capacitance as text; none at all in the prefix the others use: "0 pF", not
-    "0 F"."""
-    return format_si(value, "F") if value else "0 pF"
+    "0 F"; beyond the SI prefixes format_si writes (atto to tera) a bound, never an
+    exponent: "< 1 aF", "> 1000 TF"."""
+    if not value:
+        return "0 pF"
+    sign = "-" if value < 0 else ""
+    if abs(value) < 1e-18:
+        return f"{'> -' if sign else '< '}1 aF"
+    if abs(value) >= 1e15:
+        return f"{'< -' if sign else '> '}1000 TF"
+    return format_si(value, "F")
 
 
 def _pct(fraction: float) -> str:
@@ -238,6 +260,7 @@ def compare_rise(design: Design, bus_id: str, rise: float, c_probe: float, *,
         raise _not_open_drain(bus)
     rp, tol = got.rp, got.tolerance
     lo, hi = levels
+    _plausible_reading(rise, c_probe, lo, hi)
     cb, alone = _from_reading(rise, rp, c_probe, lo, hi)
     # a larger pull-up charges slower: the same reading then means less capacitance
     cb_low, _ = capacitance_from_rise(rise * (1 - READING_TOLERANCE), rp * (1 + tol),
@@ -469,6 +492,34 @@ def _not_open_drain(bus: Bus) -> InputError:
 def _who(endpoints) -> str:
     """The pins named as the engine labels them (``U2.reset``)."""
     return ", ".join(e.label for e in endpoints)
+
+
+def _plausible_reading(rise: float, c_probe: float, lo: float, hi: float) -> None:
+    """Refuse a reading no bench gives, naming the option: a rise outside
+    :data:`RISE_RANGE`, a probe above :data:`PROBE_MAX`, levels closer than
+    :data:`LEVELS_MIN_APART` (a value at zero or below, or levels out of order, is the
+    physics' to refuse, in its words)."""
+    import math
+
+    if rise > 0 and not RISE_RANGE[0] <= rise <= RISE_RANGE[1]:
+        raise InputError(M.OUTSIDE_RANGE, field="--rise", value=_shown(rise, "s"),
+                         expected=M.BENCH_RISE_RANGE.format(
+                             lo=format_si(RISE_RANGE[0], "s"),
+                             hi=format_si(RISE_RANGE[1], "s")))
+    if c_probe > PROBE_MAX:
+        raise InputError(M.OUTSIDE_RANGE, field="--probe", value=_shown(c_probe, "F"),
+                         expected=M.BENCH_PROBE_RANGE.format(hi=_cap(PROBE_MAX)))
+    # (10,15 are 5 % apart, whatever the floats make of 0.15 - 0.1)
+    if math.isfinite(lo) and math.isfinite(hi) and lo < hi < lo + LEVELS_MIN_APART - 1e-9:
+        raise InputError(M.LEVELS_TOO_CLOSE, field="--levels",
+                         value=f"{lo * 100:.15g}%,{hi * 100:.15g}%",
+                         expected=M.LEVELS_APART.format(apart=_pct(LEVELS_MIN_APART)))
+
+
+def _shown(value: float, unit: str) -> str:
+    """A value a user gave, as text even beyond the SI prefixes (``1e30 s``): an error
+    quotes what was given."""
+    return format_si(value, unit)
 
 
 def _from_reading(rise: float, rp: float, c_probe: float, lo: float,

@@ -27,6 +27,7 @@ from dataclasses import replace
 
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError
+from pinlib.core.labels import few_named
 from pinlib.core.tomlfile import dotted
 from pinlib.engines.ppsupply import supply_checks, supply_rows
 from pinlib.engines.pushline import Endpoint, LineInputs, device_supply, pulled_to_bus
@@ -215,7 +216,7 @@ def evaluate_gpio(bus: Bus, design: Design, *, analysis: dict | None = None) -> 
             # a push-pull output driving high against an open-drain one sinking shorts
             # them as two push-pull outputs would
             both = pp + od
-            who = ", ".join(e.label for e in both)
+            who = few_named(e.label for e in both)
             kinds = (f"{len(pp)} push-pull drivers" if not od else
                      f"{len(both)} drivers, {len(pp)} push-pull and {len(od)} open-drain,")
             result.add(Check("contention", "warn", len(both), 1, "", None,
@@ -244,7 +245,7 @@ def _note_unchecked(result, receivers) -> None:
             if all(e.level(n) is None for n in ("v_il", "v_ih", "abs_max"))]
     if len(bare) == len(receivers):
         result.notes.append(
-            f"{', '.join(bare)} {'gives' if len(bare) == 1 else 'give'} no input "
+            f"{few_named(bare)} {'gives' if len(bare) == 1 else 'give'} no input "
             "levels (v_il, v_ih) or abs_max: no level, overshoot or ringing check is "
             f"made at {'it' if len(bare) == 1 else 'them'}; a connector passes the line "
             "on: list the part beyond it, with its pin, on the line")

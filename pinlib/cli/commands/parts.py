@@ -46,9 +46,10 @@ examples:
   pinlib parts list --category memory --supply 1.8V
   pinlib parts list --function spi-sclk --json
 
-A team part that overrides a built-in one is marked 'team, overrides built-in';
-abstract classes (meant to be extended, not placed) are marked 'abstract'. When the
-kind column does not fit the terminal, a line under the table names the overrides.
+An abstract class (meant to be extended, not placed) has a '*' after its id, which
+a line under the table explains, at any width. A team part that overrides a built-in
+one is marked 'team, overrides built-in' in the kind column; when that column does
+not fit the terminal, a line under the table names the overrides.
 """,
     "show": """\
 examples:
@@ -242,12 +243,14 @@ def _kind(lib, pid) -> str:
 
 def _table(rows: list[list[str]], header: list[str], keep: int = 2,
            left_out: dict[str, str | list[str]] | None = None,
-           least: dict[str, int] | None = None, drop: list[str] | None = None) -> str:
+           least: dict[str, int] | None = None, drop: list[str] | None = None,
+           key: str | None = None) -> str:
     """The table fitted to the terminal's width (COLUMNS; piped output whole): columns that do not
     fit are left out and named; a long cell wraps inside its column.  ``left_out``: a line
     (or lines, each wrapped with its rest indented) to print for a column when it is left
     out (what it would have told).  ``least`` and ``drop``, by column title: the
-    :func:`~pinlib.core.texttable.fit_table` options."""
+    :func:`~pinlib.core.texttable.fit_table` options.  ``key``: a line right under the
+    table at any width (what a mark in it means)."""
     from pinlib.core.texttable import fit_table
     from pinlib.present.terminal import table_width, wrap
 
@@ -256,6 +259,8 @@ def _table(rows: list[list[str]], header: list[str], keep: int = 2,
         header, rows, cols, keep=keep, rule=True,
         least={header.index(k): v for k, v in (least or {}).items()},
         drop=None if drop is None else [header.index(k) for k in drop])
+    if key:
+        lines += wrap(key, cols, subsequent="  ") if cols else [key]
     for column, note in (left_out or {}).items():
         if column in dropped and note:
             if isinstance(note, str):
@@ -272,6 +277,8 @@ def _table(rows: list[list[str]], header: list[str], keep: int = 2,
 
 #: The narrowest the title column of 'parts list' wraps to: a phrase a line.
 _TITLE_WIDTH = 24
+#: After an abstract class's id in 'parts list' (M.ABSTRACT_MARKED says what it means).
+_ABSTRACT_MARK = " *"
 
 
 def _run_list(args) -> int:
@@ -312,7 +319,9 @@ def _run_list(args) -> int:
     if not chosen:
         print("no part matches" if lib.parts else "the library is empty")
         return 0
-    rows = [[p.id, p.category,
+    # an abstract class is marked beside its id, the one column always shown: it cannot be
+    # placed, and at 80 columns the kind column that says so is left out
+    rows = [[p.id + (_ABSTRACT_MARK if p.abstract else ""), p.category,
              ", ".join(label + _range_text(s) for label, s in _supplies(p)) or "-",
              ", ".join(sorted(p.functions())) or "-", _kind(lib, p.id), p.title]
             for p in chosen]
@@ -323,7 +332,8 @@ def _run_list(args) -> int:
     print(_table(rows, ["id", "category", "supply", "pin functions", "kind", "title"],
                  left_out={"kind": note},
                  least={"title": _TITLE_WIDTH, "pin functions": 16, "supply": 13, "kind": 9},
-                 drop=["kind", "pin functions", "supply", "category"]))
+                 drop=["kind", "pin functions", "supply", "category"],
+                 key=M.ABSTRACT_MARKED if any(p.abstract for p in chosen) else None))
     return 0
 
 

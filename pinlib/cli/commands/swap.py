@@ -428,6 +428,26 @@ def _known_olds(parts: dict, summaries, library_folders) -> None:
                          hint="; ".join(hints))
 
 
+def _known_news(parts: dict, summaries, library_folders) -> None:
+    """Refuse a NEW part id that no loaded design's library holds, once and before any
+    design's line (each design had said "unknown part" on its own), naming the closest
+    ids."""
+    from pinlib.core.errors import InputError
+    from pinlib.library.folders import team_folders_hint
+
+    loaded = [s.design for s in summaries if s.design is not None]
+    if not loaded:
+        return  # each design's own error says why
+    for new in dict.fromkeys(parts.values()):
+        if any(new in d.library.files for d in loaded):
+            continue
+        near = loaded[0].library.closest(new)
+        hints = (["closest: " + ", ".join(near)] if near else []) + [
+            team_folders_hint(library_folders, designs=len(loaded))]
+        raise InputError(M.NOT_A_LIBRARY_PART, field="--part", value=new,
+                         hint="; ".join(hints))
+
+
 def _run_many(args) -> int:
     """``--part OLD=NEW DESIGN...``: each design on its own; refused designs are named with
     the reasons at each position and (with --write) left as they are."""
@@ -446,6 +466,7 @@ def _run_many(args) -> int:
     summaries = [swap_in_design(p, parts, args.library, args.threshold)
                  for p in expand_designs(items)]
     _known_olds(parts, summaries, args.library)
+    _known_news(parts, summaries, args.library)
     for s in summaries:
         if s.status == "swapped" and args.write:
             try:

@@ -9,6 +9,7 @@ import math
 import numpy as np
 
 from pinlib.core import eseries
+from pinlib.core.labels import few_named
 from pinlib.engines.limits import OpenDrainLimits
 from pinlib.engines.opendrain.inputs import (
     LineInputs,
@@ -191,4 +192,4 @@ def segment_notes(grp: Group, lim: OpenDrainLimits, seg_in: SegmentInputs, r_eff
         grp.notes.append("trace capacitance: " + "; ".join(dict.fromkeys(seg_in.cb_notes)))
     grp.notes.extend(seg_in.notes)
     for text, where in seg_in.defaults.items():
-        grp.notes.append(f"{text}: {', '.join(where)}")
+        grp.notes.append(f"{text}: {few_named(where)}")

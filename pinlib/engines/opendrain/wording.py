@@ -14,7 +14,7 @@ import math
 
 import numpy as np
 
-from pinlib.core.labels import and_list
+from pinlib.core.labels import and_list, few_named
 from pinlib.engines.opendrain.arith import BY_PART, far_drivers
 from pinlib.engines.opendrain.batchfigures import one
 from pinlib.engines.opendrain.bridges import overdrive
@@ -162,7 +162,7 @@ def line(w: Words, ln: LineInputs) -> None:
         grp.notes.append(_pulled_low_afar(w, ln.signal))
     if not (local or behind) and offsets:
         grp.notes.append(f"{up} is driven low on this segment only by the static-offset side "
-                         f"of {', '.join(d.tap.label for d in offsets)}: see bridge-offset")
+                         f"of {few_named(d.tap.label for d in offsets)}: see bridge-offset")
     if ln.receivers:
         _v_oh(w, ln, rp_hi)
     _fall(w, ln, far)
@@ -326,7 +326,7 @@ def _v_ol(w: Words, ln: LineInputs, far: list) -> None:
                         "sink_model": SINK_MODEL})
     _conditional_on_r_on(w, far, chk)
     if failing:
-        _failed(chk, f"receivers {', '.join(failing)} read the low level as high: a larger "
+        _failed(chk, f"receivers {few_named(failing)} read the low level as high: a larger "
                      "pull-up, a stronger sink, smaller series resistors, or a translator")
     w.grp.add(chk)
     _noise_margin(w, up, "low", "lowest VIL − low level", lim.v_nl_rel)
@@ -432,7 +432,7 @@ def _v_oh(w: Words, ln: LineInputs, rp_hi: float) -> None:
                details={"receivers": {ln.receivers[j].tap.label: m for m, j in rows}})
     if failing:
         fix = _leakage_fix(w, ln, rp_hi, float(bc.value[0]) - float(bc.limit[0]), c)
-        _failed(chk, f"{', '.join(failing)} cannot read the pull-up rail as high: pull up to "
+        _failed(chk, f"{few_named(failing)} cannot read the pull-up rail as high: pull up to "
                      "a rail they accept, put a level translator between, or lower the pull-up "
                      f"(leakage drop){': ' + fix if fix else ''}")
     w.grp.add(chk)

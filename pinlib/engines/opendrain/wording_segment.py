@@ -9,6 +9,7 @@ import math
 
 import numpy as np
 
+from pinlib.core.labels import few_named
 from pinlib.engines.opendrain.batchfigures import one
 from pinlib.engines.opendrain.batchinputs import sda_valid_time
 from pinlib.engines.opendrain.explain import _UNITS, segment_notes
@@ -233,7 +234,7 @@ def _domains(w: Words, taps: list) -> None:
             failing = sorted({x.label for x in bad})
             rails = sorted({x.vdd for x in bad})
             its, them = ("its", "it") if len(failing) == 1 else ("their", "them")
-            chk.fix = (f"{', '.join(failing)} would be driven above {its} absolute maximum: "
+            chk.fix = (f"{few_named(failing)} would be driven above {its} absolute maximum: "
                        f"put a level translator between {them} and the "
                        f"{_f(seg_in.segment.supply, 'V')} rail, or pull this segment up to "
                        f"{_f(rails[0], 'V')} if every device on it accepts that rail")

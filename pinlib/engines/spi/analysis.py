@@ -9,7 +9,7 @@ import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import DesignError
-from pinlib.core.labels import and_list
+from pinlib.core.labels import and_list, few_named
 from pinlib.core.valueclass import value_class
 from pinlib.engines.pushline import (
     EDGE_FRACTION,
@@ -161,7 +161,7 @@ def _far_side_notes(bus: Bus, controller: Device, peripherals: list,
     refs = ", ".join(f"{b.ref} ({b.part_id})" for b in bridges)
     its = "its far side is" if len(bridges) == 1 else "their far sides are"
     return [f"{refs}: {its} not modelled: each signal runs as one net from its "
-            f"driver, so {', '.join(away)} {'is' if len(away) == 1 else 'are'} checked "
+            f"driver, so {few_named(away)} {'is' if len(away) == 1 else 'are'} checked "
             f"against the controller's {format_si(own, 'V')} levels and edges, not the far "
             "side's drive (a level check there fails where the bridge would translate)"]
 

@@ -114,6 +114,12 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
             source = OPTION if exc.file in {str(Path(p)) for p in library_folders} else ENV
             raise InputError(exc.problem, field=source, value=exc.file,
                              hint=M.FOLDER_NAMED_BY.format(source=source)) from None
+    if not raw.bus:
+        # nothing to check: a run would print PASS over 0 checks, and a CI gate would
+        # pass (refused after the library, whose errors name their own line)
+        raise DesignError(M.DESIGN_HAS_NO_BUS, field="bus",
+                          expected='a [[bus]] table with id, protocol, supply and devices',
+                          hint=M.DESIGN_HAS_NO_BUS_HINT, **at(("bus",)))
     return _build(raw, path, library, text, swaps or {}, index)
 
 

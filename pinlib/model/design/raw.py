@@ -8,7 +8,7 @@ from typing import Annotated, Literal
 from pinlib.core import messages as M
 from pinlib.core import protocols
 from pinlib.core.errors import DesignError
-from pinlib.core.quantity import parse, range_text
+from pinlib.core.quantity import format_si, parse, range_text
 from pinlib.core.records import Convert, Record, Rule, WrittenAs, field
 from pinlib.core.worklimits import MAX_ROUTE_STRETCHES
 
@@ -20,19 +20,27 @@ SPI_SIGNALS = protocols.protocol("spi").signal_names
 SIGNAL_FUNCTION = protocols.SIGNAL_FUNCTION
 
 
-def _unit_validator(unit, lo=None, hi=None, *, above=False, low_problem=None):
+def _unit_validator(unit, lo=None, hi=None, *, above=False, low_problem=None,
+                    zero_problem=None, low_hint=None):
     """A value with ``unit`` within ``lo``..``hi`` (``above``: ``lo`` itself refused).  A
     refusal quotes the text as written and states the range in the words of this test
-    (:func:`pinlib.core.quantity.range_text`); ``low_problem`` names a value below it."""
+    (:func:`pinlib.core.quantity.range_text`); ``low_problem`` names a value below it,
+    ``zero_problem`` (when given) one at zero or below, and ``low_hint(raw, x)`` may add
+    a hint to a low value's refusal."""
     expected = range_text(lo, hi, unit, above=above)
 
     def validate(raw, name=None):
         x = parse(raw, unit, field=name)
         low = lo is not None and (x <= lo if above else x < lo)
         if low or (hi is not None and x > hi):
-            problem = (low_problem if low and low_problem
-                       else M.NEGATIVE_VALUE if x < 0 <= (lo or 0) else M.OUTSIDE_RANGE)
-            raise DesignError(problem, value=raw, expected=expected)
+            if low and zero_problem and x <= 0:
+                problem = zero_problem
+            elif low and low_problem:
+                problem = low_problem
+            else:
+                problem = M.NEGATIVE_VALUE if x < 0 <= (lo or 0) else M.OUTSIDE_RANGE
+            hint = low_hint(raw, x) if low and low_hint and x > 0 else None
+            raise DesignError(problem, value=raw, expected=expected, hint=hint)
         return x
 
     return validate
@@ -85,8 +93,24 @@ Capacitance = _unit("F", 0.0, 1e-6)
 Resistance = _unit("Ω", 0.0, 1e9)
 Voltage = _unit("V", -100.0, 100.0)
 # A rail: every level and current is figured from it, so zero and below are refused here,
-# quoted as written.
-Supply = _unit("V", 0.0, 100.0, above=True, low_problem=M.SUPPLY_NOT_POSITIVE)
+# quoted as written.  Below 0.5 V no logic rail is plausible: the lowest I/O rails in use
+# are near 0.8 V to 1.2 V, and a rail below 0.5 V is a unit slip ("3.3 mV" for "3.3 V")
+# that would fail every level check with the cause listed last (common practice, no
+# source).
+SUPPLY_MIN = 0.5
+
+
+def _supply_hint(raw, x):
+    """A rail written in millivolts or smaller that reads as a rail in volts: the
+    likely slip."""
+    volts = x * 1e3
+    if isinstance(raw, str) and SUPPLY_MIN <= volts <= 100.0:
+        return M.DID_YOU_MEAN.format(name=format_si(volts, "V"))
+    return None
+
+
+Supply = _unit("V", SUPPLY_MIN, 100.0, low_problem=M.SUPPLY_TOO_LOW,
+               zero_problem=M.SUPPLY_NOT_POSITIVE, low_hint=_supply_hint)
 # Every engine divides by the clock (its period, its budget): zero is refused here.
 Frequency = _unit("Hz", 0.0, 100e9, above=True, low_problem=M.CLOCK_NOT_POSITIVE)
 Ratio = _unit("%", 0.0, 1.0)
