@@ -427,7 +427,7 @@ def test_one_milliohm_pullup_fails_with_the_sink_current_named(library, tmp_path
 # --- part files with absurd values, placed on a board ------------------------------------
 
 @pytest.mark.parametrize(("value", "problem"), [
-    ("1 F", "outside the plausible range"), ("0 pF", None), ("-8 pF", "a negative value"),
+    ("1 F", "outside the allowed range"), ("0 pF", None), ("-8 pF", "a negative value"),
     ("nan pF", "not a number with a unit"), ("inf pF", "not a number with a unit"),
     ("1e999 pF", "not a finite number"),
     ("1e-300 pF", None), ("8", "a bare number has no unit"),

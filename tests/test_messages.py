@@ -980,7 +980,18 @@ def _(env):
 
 @case("OUTSIDE_RANGE")
 def _(env):
-    return _fails(lambda e: e.part(_pin_value('"1 F"')), env)
+    err = _fails(lambda e: e.part(_pin_value('"1 F"')), env)
+    assert err.expected == "at least 0 F and at most 100 nF"
+    return err
+
+
+@case("LEVEL_RANGE", M.LEVEL_RANGE.format(lo="-50", hi="50"))
+def _(env):
+    # invented test part: a level three times the supply
+    err = _fails(lambda e: e.part(PART.format(id="p").replace(
+        'c_in = "8 pF"\n', 'c_in = "8 pF"\nv_il = "3 VDD"\n', 1)), env)
+    assert err.problem == M.OUTSIDE_RANGE
+    return err.expected
 
 
 # ---------------------------------------------------------------- records: kinds and forms

@@ -166,7 +166,7 @@ def test_inline_supply_table_stays_on_its_line(lib_dirs):
 @pytest.mark.parametrize(("field", "value", "match"), [
     ("sda.c_in", "10 pH", "capacitance"),
     ("sda.c_in", "8", "bare number"),
-    ("sda.c_in", "4k7", "plausible range"),
+    ("sda.c_in", "4k7", "allowed range"),
     ("sda.v_il", "0.3 VCC", "relative to the supply"),
     # the class runs to 5.5 V: the minimum written is the value refused, not the class
     ("supply.min", "6 V", "value is refused: supply max 5.5 V is below min 6 V"),
@@ -250,8 +250,23 @@ def test_refused_value_is_quoted_as_typed(lib_dirs, value):
     assert f"(got '{value}')" in str(info.value) and "1e288" not in str(info.value)
 
 
+def test_a_refusal_says_allowed_range_in_the_units_of_the_format_table(tmp_path):
+    # invented test part: a team cable class extending the built-in ribbon-cable.  A
+    # refusal is "outside the allowed range" ("plausible" is the range that only warns)
+    # and states it per metre, as docs/formats/part.md does (it read "at least 10 ps/cm
+    # and at most 10 ns/cm" beside a documented 1 ns/m to 1 µs/m)
+    new_part(load_library([], env=False), "x-cable", "ribbon-cable", tmp_path,
+             source="catalogue p. 3")
+    with pytest.raises(LibraryError) as info:
+        record_value(load_library([tmp_path], env=False), "x-cable", "line.delay",
+                     "0.5 ns/m", "catalogue p. 3")
+    assert info.value.problem == "the value is refused: outside the allowed range"
+    assert info.value.expected == "at least 1 ns/m and at most 1 µs/m"
+    assert "plausible" not in str(info.value)
+
+
 @pytest.mark.parametrize(("typ", "match"), [("-3 pF", "negative"),
-                                            ("1e300 pF", "plausible range")])
+                                            ("1e300 pF", "allowed range")])
 def test_a_typical_value_is_held_to_the_limits_of_its_field(lib_dirs, typ, match):
     # a typical c_in of -3 pF was recorded without a word
     _, team = lib_dirs

@@ -32,7 +32,9 @@ __all__ = ["MODULES", "all_messages"]
 
 # ---------------------------------------------------------------- shared by several modules
 NEGATIVE_VALUE = "a negative value"
-OUTSIDE_RANGE = "outside the plausible range"
+# a hard refusal: "plausible" is the soft range of pinlib/library/plausible.py, which
+# only warns (docs/formats/part.md)
+OUTSIDE_RANGE = "outside the allowed range"
 UNKNOWN_PART = "unknown part"
 UNKNOWN_FIELD = "unknown field"
 MISSING_FIELD = "a required field is missing"
@@ -147,6 +149,9 @@ CABLE_NEEDS_TWO_OF_THREE = ("a cable class gives its capacitance per length, or 
 VALUE_TABLE_UNKNOWN_KEY = "unknown key '{key}' in a value table"
 VALUE_TABLE_WITHOUT_VALUE = "a value table without 'value'"
 SOURCE_NOT_TEXT = "a source must be text"
+# the expected text of OUTSIDE_RANGE for a level (docs/formats/part.md, "Levels that
+# follow the supply")
+LEVEL_RANGE = "a multiple of VDD within ±2 plus an offset within {lo} V to {hi} V"
 # plausible.py (warnings: the part still loads)
 IMPLAUSIBLE_VALUE = "an implausible value for this field"
 TYP_BEYOND_LIMIT = "the typical value lies beyond the limit beside it, {limit}"

@@ -97,7 +97,8 @@ def typ_beyond(value: Sourced, field: str, supplies: tuple[float, ...] = ()) -> 
 def _range_text(lo: float, hi: float, unit: str) -> str:
     if unit == "VDD":
         return f"{lo:g} VDD to {hi:g} VDD"
-    return f"{format_si(lo, unit)} to {format_si(hi, unit)}"
+    # per metre, as the ranges are stated (docs/formats/part.md) and cables catalogued
+    return f"{format_si(lo, unit, per='m')} to {format_si(hi, unit, per='m')}"
 
 
 def implausible(value: Sourced, field: str, drive: str = "*",
@@ -133,7 +134,7 @@ def implausible(value: Sourced, field: str, drive: str = "*",
             if vdd is None or (unit != "VDD" and not relative):
                 return _range_text(lo, hi, unit)
             # the value depends on the supply: say at which end it leaves the range
-            got = f"{x:.3g} VDD" if unit == "VDD" else format_si(x, unit)
+            got = f"{x:.3g} VDD" if unit == "VDD" else format_si(x, unit, per="m")
             return f"{_range_text(lo, hi, unit)}; at VDD {format_si(vdd, 'V')} it is {got}"
     return None
 

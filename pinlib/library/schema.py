@@ -96,7 +96,9 @@ def _q(unit, lo=None, hi=None, signed=False):
     return Annotated[Sourced, Convert(sourced_parser(unit, lo, hi, signed=signed))]
 
 
-# Plausible ranges: wide enough for any real pin, narrow enough to catch a lost prefix.
+# Allowed ranges (a value outside is refused; docs/formats/part.md): wide enough for any
+# real pin, narrow enough to catch a lost prefix.  The plausible ranges, which only
+# warn, are pinlib.library.plausible.RANGES.
 Capacitance = _q("F", 0.0, 100e-9)
 Current = _q("A", 0.0, 10.0)
 Voltage = _q("V", -50.0, 50.0, signed=True)
