@@ -670,6 +670,17 @@ def _(env):
     return _typ_beyond(env).message
 
 
+@case("TYP_NEED_RULE", M.TYP_NEED_RULE.format(field="t_su_dat"))
+def _(env):
+    # invented test part: a typical data setup need above the guaranteed one
+    from pinlib.library.plausible import part_warnings
+
+    text = PART.format(id="p") + '\n[timing]\nt_su_dat = { value = "100 ns", typ = "250 ns" }\n'
+    (got,) = part_warnings(env.part(text).get("p"), None)
+    assert got.field == "timing.t_su_dat.typ" and got.value == "250 ns"
+    return got.message
+
+
 def _below_ground(env):
     env.write("team/p.toml", PART.format(id="p").replace(
         'c_in = "8 pF"', 'c_in = "8 pF"\nv_ol = "VDD - 2.9 V"\ni_ol = "3 mA"', 1))

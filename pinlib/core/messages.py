@@ -157,6 +157,9 @@ IMPLAUSIBLE_VALUE = "an implausible value for this field"
 TYP_BEYOND_LIMIT = "the typical value lies beyond the limit beside it, {limit}"
 TYP_SIDE_RULE = ("a typ {rel} the value, which for {field} is the {side} (one of "
                  "them mistyped, or the two swapped?)")
+TYP_NEED_RULE = ("a typ at most the value: {field} is the least the part must be given, and "
+                 "its typical need lies at or below it (one of them mistyped, or the two "
+                 "swapped?)")
 PLAUSIBLE_RANGE = "{range} (common practice, no source)"
 FAST_CORNER_WEAKER = "the fast corner's r_out is above the slow corner's {slow}: corners swapped?"
 FAST_CORNER_RULE = "a fast corner's r_out at most the pin's own r_out (the slow corner)"
