@@ -605,7 +605,7 @@ def test_record_holds_a_typical_level_to_the_limit_s_range(lib, capsys):
                        "9 VDD", "--source", "rev B", "--library", "team")
     err = " ".join(err.split())
     assert code == 2 and "field 'pins.sda.v_il.typ'" in err, err
-    assert "(got '9 VDD')" in err and "a scale of VDD within ±2" in err
+    assert "(got '9 VDD')" in err and "a multiple of VDD within ±2" in err
     assert (lib[1] / "eeprom.toml").read_bytes() == before
 
 

@@ -1329,6 +1329,37 @@ def _(env):
     return _pin_of_a_bridge(env).message
 
 
+def _side_of_a_bridge(env, side="c"):
+    lib = load_library([], env=False)
+    rec.new_part(lib, "rp", "i2c-repeater", env.tmp / "team", source="rev A")
+    lib = load_library([env.tmp / "team"], env=False)
+    return _fails(lambda e: rec.record_value(lib, "rp", f"sides.{side}.sda.c_in", "9 pF",
+                                             "rev A"), env)
+
+
+@case("NO_SUCH_SIDE", M.NO_SUCH_SIDE.format(side="c"))
+def _(env):
+    return _side_of_a_bridge(env)
+
+
+@case("ONE_OF_ITS_SIDES", M.ONE_OF_ITS_SIDES.format(sides="a, b"))
+def _(env):
+    return _side_of_a_bridge(env).expected
+
+
+@case("NO_SIDES")
+def _(env):
+    lib = env.team("p")
+    return _fails(lambda e: rec.record_value(lib, "p", "sides.a.sda.c_in", "9 pF", "rev A"), env)
+
+
+@case("NO_SIDES_EXPECTED", M.NO_SIDES_EXPECTED.format(pins="scl, sda"))
+def _(env):
+    lib = env.team("p")
+    return _fails(lambda e: rec.record_value(lib, "p", "sides.a.sda.c_in", "9 pF", "rev A"),
+                  env).expected
+
+
 # ---------------------------------------------------------------- design
 @case("FILE_HOLDS_NOTHING")
 def _(env):

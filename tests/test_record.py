@@ -292,6 +292,38 @@ def test_unknown_fields_are_refused(lib_dirs, field, match):
     assert (team / "child.toml").read_bytes() == before
 
 
+@pytest.mark.parametrize(("field", "line", "problem"), [
+    # a pin the part lacks: at the first pin table; a misspelt field: at its pin's table
+    ("sdx.c_in", 10, "the part has no such pin"), ("sda.c_inn", 10, "unknown field"),
+    ("timing.fmax", 19, "unknown field"), ("scl.c_in.x", 16, "a value field has no sub-fields"),
+    ("sides.a.sda.c_in", None, "the part has no sides: only a bridging part has them"),
+])
+def test_a_refused_field_names_the_part_file_and_its_table_line(lib_dirs, field, line,
+                                                               problem):
+    # invented test part.  "sdx.c_in" and "sda.c_inn" were refused without the file
+    _, team = lib_dirs
+    with pytest.raises(LibraryError) as info:
+        record_value(load(team), "child", field, "8 pF", "rev C")
+    assert info.value.problem == problem
+    assert info.value.file == str(team / "child.toml")
+    assert info.value.line == line
+
+
+def test_a_side_the_bridge_lacks_is_named_with_its_sides(tmp_path, monkeypatch):
+    # invented test part extending the built-in repeater: "sides.c.sda.c_in" was "the
+    # part has no such pin ... expected one of its pins (none)"
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    path = new_part(load_library([], env=False), "rep", "i2c-repeater", tmp_path,
+                    source="rev A")
+    with pytest.raises(LibraryError) as info:
+        record_value(load_library([tmp_path], env=False), "rep", "sides.c.sda.c_in",
+                     "8 pF", "rev A")
+    err = info.value
+    assert (err.problem, err.field, err.file) == ("the part has no side 'c'", "sides.c",
+                                                  str(path))
+    assert err.expected == "one of its sides (a, b)" and err.hint == "e.g. sides.a.sda.c_in"
+
+
 def test_a_source_pasted_over_two_lines_is_written_as_one(lib_dirs):
     # a source copied out of a PDF's table caption kept its line break: the file held
     # "rev C,\n table 7.5", and every listing of the source broke its line there

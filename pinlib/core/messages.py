@@ -204,6 +204,10 @@ CANNOT_KEEP_LAYOUT = "cannot set this value while keeping the file's layout"
 NO_SUCH_PIN = "the part has no such pin"
 PINS_ON_SIDES = "a bridging part has no pins of its own: its pins are on its sides"
 SIDE_PIN_PATHS = "the file holds such a value in {tables}"
+NO_SUCH_SIDE = "the part has no side '{side}'"
+ONE_OF_ITS_SIDES = "one of its sides ({sides})"
+NO_SIDES = "the part has no sides: only a bridging part has them"
+NO_SIDES_EXPECTED = "PIN.FIELD on one of its own pins ({pins})"
 
 # ---------------------------------------------------------------- pinlib/model/design/
 NOT_A_DESIGN = "not a design file"

@@ -36,7 +36,7 @@ from pinlib.library.fields import resolve_path
 from pinlib.library.schema import FORMAT
 from pinlib.library.sources import NEEDS_SOURCE
 
-__all__ = ["RECORD_BASES", "new_part", "record_value"]
+__all__ = ["RECORD_BASES", "new_part", "record_value", "resolve_field"]
 
 #: The bases a recorded value may carry ("generic" is for the built-in classes,
 #: "derived" is set by pinlib itself).
@@ -304,7 +304,7 @@ def _refusal(err: PinlibError, path: Path, field: str | None, old_text: str | No
                             expected=err.expected,
                             hint=f"{field} was not written: correct this first, then "
                                  "record again")
-    line = None if old_text is None else line_of(line_index(old_text), tuple(field.split(".")))
+    line = None if old_text is None else _line_near(old_text, field)
     if _within(err.field, field):
         # the value, or a part of it the command wrote (its --typ: "pins.sda.c_in.typ")
         return LibraryError(M.VALUE_REFUSED.format(problem=err.problem), file=str(path), line=line,
@@ -472,7 +472,7 @@ def record_value(library: loader.Library, part_id: str, field: str, value_text: 
                            field="id", value=part_id,
                            hint=f"make a team part first: pinlib parts new {part_id}-v2 "
                                 f"--from {part_id} --into FOLDER")
-    keys, _kind = resolve_path(field)
+    keys, _kind = resolve_field(library, part_id, field)
     dotted = ".".join(keys)
     if not isinstance(value_text, str) or not value_text.strip():
         raise InputError(M.VALUE_NEEDED, field=dotted, value=value_text,
@@ -503,7 +503,7 @@ def record_value(library: loader.Library, part_id: str, field: str, value_text: 
         if old_data.get("id") != part_id or old_data.get("format") != FORMAT:
             raise LibraryError(M.FILE_NO_LONGER_HOLDS_PART, file=str(path),
                                field="id", value=old_data.get("id"), expected=part_id)
-        _check_pin_exists(library, part_id, pf, old_data, keys)
+        _check_pin_exists(library, part_id, pf, old_data, keys, old_text)
         before = doc.as_string()
         _set_path(doc, keys, item)
         expected = _expected_data(old_data, keys, _plain(item))
@@ -526,18 +526,98 @@ def record_value(library: loader.Library, part_id: str, field: str, value_text: 
     return path
 
 
-def _check_pin_exists(library, part_id, pf, data, keys) -> None:
-    """A pin must exist (here or in a parent) before a value is recorded on it."""
-    if "pins" not in keys:
-        return
-    at = keys.index("pins")
-    pin = keys[at + 1]
+def resolve_field(library: loader.Library, part_id: str, field: str):
+    """The key path and kind of ``field`` (:func:`pinlib.library.fields.resolve_path`);
+    a path that names no value is refused at the part's file, and at the line of the
+    table the field would go in where the file has it (``sda.c_inn`` at ``[pins.sda]``).
+
+    Parameters
+    ----------
+    library : Library
+        The merged library holding the part.
+    part_id : str
+        The part the value is for.
+    field : str
+        ``PIN.FIELD``, ``timing.FIELD``, ``supply.min``...
+
+    Returns
+    -------
+    tuple
+        (keys, :class:`~pinlib.library.fields.ValueKind`).
+
+    Raises
+    ------
+    LibraryError
+        When the path does not end at a field that takes a value.
+    """
+    try:
+        return resolve_path(field)
+    except LibraryError as err:
+        pf = library.files.get(part_id)
+        if pf is None:
+            raise
+        raise _at_part(err, pf.path, pf.text, err.field) from None
+
+
+def _at_part(err: LibraryError, path: Path, text: str, field: str | None) -> LibraryError:
+    """``err`` located at the part's file and the line of ``field`` there, else of the
+    nearest table that holds it, else of the first table beside it (``pins.sdx`` at
+    ``[pins.sda]``); no line when the file has none of them."""
+    return err.located(file=str(path), line=_line_near(text, field))
+
+
+def _line_near(text: str, field: str | None) -> int | None:
+    """The line of ``field`` (dotted) in ``text``, else of the nearest table that holds
+    it, else of the first table beside it; None when the file has none of them."""
+    loc = tuple(field.split(".")) if isinstance(field, str) and field else ()
+    index = line_index(text)
+    line = line_of(index, loc) if loc else None
+    while line is None and loc:
+        # no table of its own: the first of its siblings ("pins.sdx" at [pins.sda])
+        loc = loc[:-1]
+        lines = [n for k, n in index.items() if loc and k[:len(loc)] == loc]
+        line = min(lines) if lines else None
+    return line
+
+
+def _check_pin_exists(library, part_id, pf, data, keys, text: str = "") -> None:
+    """A side must exist (here or in a parent) before a value is recorded on it, and a pin
+    before a value is recorded on the pin; a refusal names the file (and the line of
+    the table the value would go in)."""
     files = dict(library.files)
     files[part_id] = loader.PartFile(pf.path, data, "", False)
     try:
         merged, _, _ = loader._merged_raw(part_id, files, [])
     except LibraryError:
         return  # the full validation reports it
+    try:
+        if keys[0] == "sides":
+            _check_side(merged, keys)
+        if "pins" in keys:
+            _check_pin(merged, keys)
+    except LibraryError as err:
+        raise _at_part(err, pf.path, text, err.field) from None
+
+
+def _check_side(merged: dict, keys: tuple[str, ...]) -> None:
+    sides = merged.get("sides") if isinstance(merged.get("sides"), dict) else {}
+    side = keys[1]
+    if side in sides:
+        return
+    if not sides:
+        pins = merged.get("pins") if isinstance(merged.get("pins"), dict) else {}
+        raise LibraryError(M.NO_SIDES, field=f"sides.{side}", value=side,
+                           expected=M.NO_SIDES_EXPECTED.format(
+                               pins=", ".join(sorted(map(str, pins))) or "none"))
+    raise LibraryError(M.NO_SUCH_SIDE.format(side=side), field=f"sides.{side}", value=side,
+                       expected=M.ONE_OF_ITS_SIDES.format(sides=", ".join(sorted(sides))),
+                       hint=f"e.g. sides.{sorted(sides)[0]}." + ".".join(
+                           keys[3:] if keys[2:3] == ("pins",) else keys[2:]))
+
+
+def _check_pin(merged: dict, keys: tuple[str, ...]) -> None:
+    at = keys.index("pins")
+    pin = keys[at + 1]
     node = merged
     for key in keys[: at + 1]:
         node = node.get(key, {}) if isinstance(node, dict) else {}

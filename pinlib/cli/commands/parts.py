@@ -559,12 +559,11 @@ def _run_new(args) -> int:
 # --- record ----------------------------------------------------------------------------
 
 def _run_record(args) -> int:
-    from pinlib.library.fields import resolve_path
-    from pinlib.library.record import one_line, record_value
+    from pinlib.library.record import one_line, record_value, resolve_field
 
     lib = _load(args)
     _refuse_unknown(lib, args.id, "ID", args)
-    keys, _ = resolve_path(args.field)
+    keys, _ = resolve_field(lib, args.id, args.field)
     was = _value_before(lib, args.id, ".".join(keys), typ_given=args.typ is not None)
     path = record_value(lib, args.id, args.field, args.value, args.source,
                         basis=args.basis, typ=args.typ)
