@@ -238,6 +238,55 @@ def _(env):
     return _fails(lambda e: atomic_write(e.tmp / "missing-folder" / "x.toml", "x = 1\n"), env)
 
 
+def _denied(env, errno_code, lock_there=False):
+    # the file system refuses the lock file (as it does a user who may not write in
+    # the folder; root, which runs these tests, may write anywhere)
+    if lock_there:
+        (env.tmp / ".x.toml.lock").write_text("")
+    real_open = os.open
+
+    def refuse(path, *args, **kw):
+        if str(path).endswith(".lock"):
+            raise OSError(errno_code, os.strerror(errno_code), str(path))
+        return real_open(path, *args, **kw)
+    env.monkeypatch.setattr(os, "open", refuse)
+
+    def lock(e):
+        with file_lock(e.tmp / "x.toml"):
+            pass
+    return _fails(lock, env)
+
+
+def _user():
+    import pwd
+
+    return pwd.getpwuid(os.geteuid()).pw_name
+
+
+@case("FOLDER_NOT_WRITABLE", lambda: M.FOLDER_NOT_WRITABLE.format(folder="{tmp}", user=_user()))
+def _(env):
+    err = _denied(env, errno.EACCES)
+    assert err.file == str((env.tmp / "x.toml").resolve())
+    # the folder is named as it is, the test's own folder not known to the case list
+    return err.problem.replace(str(env.tmp.resolve()), "{tmp}")
+
+
+@case("WRITABLE_FOLDER_HINT")
+def _(env):
+    return _denied(env, errno.EPERM).message
+
+
+@case("FOLDER_READ_ONLY_FS", M.FOLDER_READ_ONLY_FS.format(folder="{tmp}"))
+def _(env):
+    return _denied(env, errno.EROFS).problem.replace(str(env.tmp.resolve()), "{tmp}")
+
+
+@case("LOCK_NOT_WRITABLE", lambda: M.CANNOT_LOCK.format(reason=M.LOCK_NOT_WRITABLE.format(
+    lock=".x.toml.lock", user=_user())))
+def _(env):
+    return _denied(env, errno.EACCES, lock_there=True)
+
+
 @case("CANNOT_WRITE_FILE", M.CANNOT_WRITE_FILE.format(reason=os.strerror(errno.EACCES)))
 def _(env):
     def refuse(src, dst):

@@ -810,3 +810,37 @@ def test_a_lock_left_by_a_killed_writer_is_taken_over(tmp_path):
     record_value(load_library([team], builtin=False, env=False), "many", "p99.c_in",
                  "1 pF", "after the kill")
     assert _c_in_values(path)[99] == "1 pF" and not lock.exists()
+
+
+def test_a_folder_this_user_may_not_write_in_is_named(tmp_path, monkeypatch):
+    # "cannot lock the file: Permission denied" did not say what was not writable.  Root
+    # writes anywhere: it runs the command without the capability that lets it
+    import shutil
+
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    prefix = []
+    if os.geteuid() == 0:
+        if not shutil.which("setpriv"):
+            pytest.skip("root without setpriv writes in any folder")
+        prefix = ["setpriv", "--bounding-set=-dac_override,-dac_read_search,-fowner"]
+    folder = tmp_path / "ro"
+    path = new_part(load_library([], env=False), "ro-part", "eeprom-i2c", folder,
+                    source="rev A")
+    before = path.read_bytes()
+    folder.chmod(0o555)
+    env = dict(os.environ, COLUMNS="80", PINLIB_CACHE_DIR="off",
+               PYTHONPATH=str(Path(__file__).resolve().parents[1]))
+    try:
+        for argv in (["record", "ro-part", "sda.c_in", "5 pF", "--source", "rev A"],
+                     ["new", "ro-two", "--from", "eeprom-i2c", "--into", str(folder)]):
+            run = subprocess.run([*prefix, sys.executable, "-m", "pinlib", "parts", *argv,
+                                  "--library", str(folder)], capture_output=True, text=True,
+                                 env=env, timeout=60)
+            err = " ".join(run.stderr.split())
+            assert run.returncode == 2, err
+            assert f"the folder {folder} is not writable by this user" in err, err
+            assert "Traceback" not in err and "Permission denied" not in err
+    finally:
+        folder.chmod(0o755)
+    assert path.read_bytes() == before
+    assert sorted(p.name for p in folder.iterdir()) == ["ro-part.toml"]
