@@ -378,6 +378,19 @@ def test_show_makes_a_title_s_escape_codes_visible_even_those_like_pinlib_s_own(
 
 # --- new and record ----------------------------------------------------------------------
 
+@pytest.mark.parametrize(("title", "problem"), [
+    ("", "an empty title"), ("   ", "an empty title"),
+    ("two\nlines", "a title of more than one line")])
+def test_new_refuses_a_blank_title_or_one_of_two_lines(lib, capsys, title, problem):
+    # invented titles: each was written into the new file
+    _, team = lib
+    code, out, err = run(capsys, "parts", "new", "flash-b", "--from", "flash", "--into",
+                         "team", "--title", title)
+    assert code == 2 and not out
+    assert f"field '--title': {problem}" in " ".join(err.split())
+    assert "Traceback" not in err and not (team / "flash-b.toml").exists()
+
+
 def test_new_then_record(lib, capsys):
     _, team = lib
     code, out, _ = run(capsys, "parts", "new", "flash-b", "--from", "flash", "--into", "team",

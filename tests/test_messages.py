@@ -1378,6 +1378,24 @@ def _(env):
     return _pin_of_a_bridge(env).message
 
 
+@case("TITLE_BLANK")
+def _(env):
+    return _fails(lambda e: e.part(PART.format(id="p").replace('"Team target"', '"  "')), env)
+
+
+@case("TITLE_NOT_ONE_LINE")
+def _(env):
+    return _fails(lambda e: e.part(PART.format(id="p").replace('"Team target"',
+                                                              '"Team\\ntarget"')), env)
+
+
+@case("TITLE_EXPECTED")
+def _(env):
+    lib = load_library([], env=False)
+    return _fails(lambda e: rec.new_part(lib, "p", "eeprom-i2c", e.tmp / "team", title=""),
+                  env).expected
+
+
 def _side_of_a_bridge(env, side="c"):
     lib = load_library([], env=False)
     rec.new_part(lib, "rp", "i2c-repeater", env.tmp / "team", source="rev A")

@@ -371,16 +371,12 @@ def test_refuses_to_write_into_the_builtin_library(lib_dirs):
 
 
 @pytest.mark.parametrize("title, head", [
-    ("Line one\nformat = 3", "# Line one format = 3"),
-    ("tab\tand\r\nreturn", "# tab and return"),
     ("bell\x07", "# bell"),
-    ("next\x85line", "# next line"),
-    ("para\u2029graph", "# para graph"),
+    ("tab\there", "# tab here"),
 ])
-def test_a_title_with_a_line_break_stays_one_comment(lib_dirs, title, head):
-    # Once a traceback (TOMLDecodeError): the title, written as the first comment, was cut
-    # by its line break, and the rest read as TOML ("format = 3" a second format key) or
-    # held a character no TOML comment may hold.  The title itself is kept as given.
+def test_a_title_with_a_control_character_stays_one_comment(lib_dirs, title, head):
+    # Once a traceback (TOMLDecodeError): the title, written as the first comment, held a
+    # character no TOML comment may hold.  The title itself is kept as given.
     _, team = lib_dirs
     lib = load(team)
     path = new_part(lib, "fresh", "base", team, title=title)
@@ -388,6 +384,40 @@ def test_a_title_with_a_line_break_stays_one_comment(lib_dirs, title, head):
     assert tomllib.loads(text)["title"] == title
     assert load(team).parts["fresh"].title == title
     assert text.splitlines()[0] == head
+
+
+@pytest.mark.parametrize(("title", "problem"), [
+    ("", "an empty title"), ("   ", "an empty title"), ("\t\n", "an empty title"),
+    ("Line one\nformat = 3", "a title of more than one line"),
+    ("tab\tand\r\nreturn", "a title of more than one line"),
+    ("next\x85line", "a title of more than one line"),
+    ("para\u2029graph", "a title of more than one line"),
+])
+def test_a_blank_title_or_one_of_several_lines_is_refused(lib_dirs, title, problem):
+    # invented titles.  The format says a title is one line: "" and "   " were written,
+    # and a title with a line break was stored with its "\n"
+    _, team = lib_dirs
+    with pytest.raises(InputError) as info:
+        new_part(load(team), "fresh", "base", team, title=title)
+    assert (info.value.problem, info.value.field, info.value.value) == (problem, "title", title)
+    assert not (team / "fresh.toml").exists()
+
+
+@pytest.mark.parametrize(("written", "problem"), [
+    ('""', "an empty title"), ('"  "', "an empty title"),
+    ('"Serial EEPROM\\nsecond line"', "a title of more than one line"),
+    ('"""\nSerial EEPROM\nsecond line"""', "a title of more than one line"),
+])
+def test_a_part_file_whose_title_is_blank_or_several_lines_is_refused(lib_dirs, written,
+                                                                      problem):
+    # invented test part: parts check names the file, line and field
+    _, team = lib_dirs
+    (team / "child.toml").write_text(CHILD.replace('title = "Serial EEPROM"',
+                                                   f"title = {written}"), encoding="utf-8")
+    lib = load_library([team])
+    (err,) = [p for p in lib.problems if p.field == "title"]
+    assert (err.problem, err.file, err.line) == (problem, str(team / "child.toml"), 4)
+
 
 @pytest.mark.parametrize("new_id", ["b", "x" * 64])
 def test_a_new_part_file_fits_80_columns(lib_dirs, new_id):

@@ -187,6 +187,10 @@ PATH_STOPS_AT_NAMED_TABLE = "the path stops at a table of named items"
 FIELD_TAKES_NO_VALUE = "this field takes no recorded value: {what}"
 PATH_STOPS_BEFORE_FIELD = "the path stops before a field"
 FIELD_WITHOUT_PIN = "a pin's field without its pin"
+# schema.py: a part's title
+TITLE_BLANK = "an empty title"
+TITLE_NOT_ONE_LINE = "a title of more than one line"
+TITLE_EXPECTED = "one line of text for people (e.g. 'Serial EEPROM, I2C, 1.7 to 5.5 V')"
 # record.py
 BUILTIN_NOT_WRITTEN = "the built-in library is not written to"
 BUILTIN_NOT_WRITTEN_BECAUSE = "the built-in library is not written to ({reason})"

@@ -33,7 +33,7 @@ from pinlib.core.errors import InputError, LibraryError, PinlibError, WriteError
 from pinlib.core.tomlfile import BOM, atomic_write, file_lock, line_index, line_of, tomllib
 from pinlib.library import loader
 from pinlib.library.fields import resolve_path
-from pinlib.library.schema import FORMAT
+from pinlib.library.schema import FORMAT, title_problem
 from pinlib.library.sources import NEEDS_SOURCE
 
 __all__ = ["RECORD_BASES", "new_part", "record_value", "resolve_field"]
@@ -93,6 +93,20 @@ def _check_id(new_id: object) -> str:
     return new_id
 
 
+def check_title(title: str | None, field: str = "title") -> None:
+    """Refuse a title that is blank or more than one line, naming ``field`` (``title``,
+    or the command's ``--title``); None (the class's title) passes.
+
+    Raises
+    ------
+    InputError
+        With the problem of :func:`pinlib.library.schema.title_problem`.
+    """
+    problem = None if title is None else title_problem(title)
+    if problem is not None:
+        raise InputError(problem, field=field, value=title, expected=M.TITLE_EXPECTED)
+
+
 def one_line(text: str) -> str:
     """A source as one line: a line break or tab pasted with it (a caption copied out
     of a PDF) and any run of white space become one space, the ends stripped."""
@@ -142,7 +156,7 @@ def new_part(library: loader.Library, new_id: str, from_class: str,
     into_folder : path
         The team library folder to write ``<new_id>.toml`` into (created if missing).
     title : str, optional
-        The new part's title; the class's title when omitted.
+        The new part's title, one line (not blank); the class's title when omitted.
     basis, source : str
         The part's provenance: how its own values were obtained and from what.  Without
         a source none is written (never an empty one): a comment asks for it, and
@@ -158,10 +172,13 @@ def new_part(library: loader.Library, new_id: str, from_class: str,
     LibraryError
         An id that exists or is malformed, an unknown class (with the closest ids), or
         a folder inside the built-in library.
+    InputError
+        A title that is blank or holds a line break.
     WriteError
         When the folder or file cannot be written.
     """
     _check_id(new_id)
+    check_title(title)
     if new_id in library.files:
         raise LibraryError(M.PART_ID_EXISTS, field="id", value=new_id,
                            file=str(library.files[new_id].path),

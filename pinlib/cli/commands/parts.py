@@ -534,8 +534,9 @@ def _default_folder(args) -> Path:
 
 
 def _run_new(args) -> int:
-    from pinlib.library.record import new_part
+    from pinlib.library.record import check_title, new_part
 
+    check_title(args.title, "--title")
     folder = Path(args.into) if args.into else _default_folder(args)
     lib = _load(args)
     _refuse_unknown(lib, args.from_class, "--from", args)
