@@ -877,3 +877,25 @@ def test_check_keeps_a_long_path_whole_on_a_line_of_its_own(lib, capsys, tmp_pat
     assert lines[i + 1] == "a.toml:10," and lines[i + 2].startswith("    field 'pins.sda.c_in'")
     # the closing line's "<path>:" (79 characters) whole and unindented
     assert lines[-3:] == ["checked 1 file in", rel + ":", "    1 problem"]
+
+
+@pytest.mark.parametrize(("cls", "field"), [
+    ("ribbon-cable", "line.capacitance"), ("i2c-repeater", "sides.a.PIN.FIELD"),
+    ("eeprom-i2c", "PIN.FIELD")])
+def test_new_names_a_field_the_class_has_as_the_next_step(tmp_path, monkeypatch, capsys,
+                                                          cls, field):
+    # a cable has no pins: its next step read "pinlib parts record x PIN.FIELD ...", and
+    # so did the comment the new file opens with
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    monkeypatch.setenv("COLUMNS", "80")
+    code, out, _ = run(capsys, "parts", "new", "x-part", "--from", cls, "--into",
+                       str(tmp_path), "--source", "invented rev A")
+    assert code == 0
+    assert f"next: pinlib parts record x-part {field} \"VALUE\"" in out
+    assert all(len(line) <= 80 for line in out.splitlines())
+    text = (tmp_path / "x-part.toml").read_text(encoding="utf-8")
+    assert f'#   pinlib parts record x-part {field} "VALUE"' in text
+    if field == "line.capacitance":  # the step it names is one that works
+        code, out, err = run(capsys, "parts", "record", "x-part", field, "60 pF/m",
+                             "--source", "invented rev A", "--library", str(tmp_path))
+        assert code == 0, err

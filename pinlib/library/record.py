@@ -36,7 +36,7 @@ from pinlib.library.fields import resolve_path
 from pinlib.library.schema import FORMAT, title_problem
 from pinlib.library.sources import NEEDS_SOURCE
 
-__all__ = ["RECORD_BASES", "new_part", "record_value", "resolve_field"]
+__all__ = ["RECORD_BASES", "field_example", "new_part", "record_value", "resolve_field"]
 
 #: The bases a recorded value may carry ("generic" is for the built-in classes,
 #: "derived" is set by pinlib itself).
@@ -195,7 +195,8 @@ def new_part(library: loader.Library, new_id: str, from_class: str,
         *_comment(title),
         *_comment(f"A team part that extends '{from_class}' and inherits all of its values."),
         "# Record this part's own values with their sources, e.g.",
-        *_command_comment(["pinlib parts record", new_id, 'PIN.FIELD "VALUE"',
+        *_command_comment(["pinlib parts record", new_id,
+                           f'{field_example(parent)} "VALUE"',
                            '--source "document, revision, table"']),
         f"format = {_toml_string(FORMAT)}",
         f"id = {_toml_string(new_id)}",
@@ -206,6 +207,31 @@ def new_part(library: loader.Library, new_id: str, from_class: str,
         "",
     ])
     return write_new_part(library, new_id, target, text)
+
+
+def field_example(part) -> str:
+    """The FIELD a ``pinlib parts record`` of a part extending ``part`` would name, as its
+    next step says it: ``line.capacitance`` for a cable class (it has no pins),
+    ``sides.a.PIN.FIELD`` for a bridging part, ``timing.FIELD`` for a part with no pins,
+    else ``PIN.FIELD``.
+
+    Parameters
+    ----------
+    part : Part
+        The class the new part extends.
+
+    Returns
+    -------
+    str
+        The field, with placeholders in capitals.
+    """
+    if part.line is not None or part.category == "cable":
+        return "line.capacitance"
+    if part.sides:
+        return f"sides.{sorted(part.sides)[0]}.PIN.FIELD"
+    if not part.pins:
+        return "timing.FIELD"
+    return "PIN.FIELD"
 
 
 def _provenance_lines(basis: str, source: str, today: _dt.date) -> list[str]:

@@ -534,7 +534,7 @@ def _default_folder(args) -> Path:
 
 
 def _run_new(args) -> int:
-    from pinlib.library.record import check_title, new_part
+    from pinlib.library.record import check_title, field_example, new_part
 
     check_title(args.title, "--title")
     folder = Path(args.into) if args.into else _default_folder(args)
@@ -551,7 +551,8 @@ def _run_new(args) -> int:
     if folder.resolve() not in known:
         print(fitted(f"note: {_rel(folder)} is not a library folder yet: pass --library "
                      f"{folder} or add it to PINLIB_LIBRARY", sys.stderr), file=sys.stderr)
-    print(fitted_command("next:", ["pinlib", "parts", "record", args.id, "PIN.FIELD",
+    print(fitted_command("next:", ["pinlib", "parts", "record", args.id,
+                                   field_example(lib.get(args.from_class)),
                                    '"VALUE"', '--source "..."']
                          + ([f"--library {folder}"] if folder.resolve() not in known else [])))
     return 0
