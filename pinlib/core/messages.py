@@ -62,9 +62,9 @@ FOLDER_NOT_WRITABLE = "the folder {folder} is not writable by this user ({user})
 FOLDER_READ_ONLY_FS = "the folder {folder} is on a read-only file system"
 LOCK_NOT_WRITABLE = "its lock file {lock} is not writable by this user ({user})"
 # the hint of FOLDER_NOT_WRITABLE
-WRITABLE_FOLDER_HINT = ("pinlib writes its lock file and the file itself in that folder: "
-                        "use a folder this user may write in (a copy of the parts), or ask "
-                        "the folder's owner")
+WRITABLE_FOLDER_HINT = ("pinlib writes its lock file and the new file in that folder: use "
+                        "a folder this user may write in (a copy of the files), or ask the "
+                        "folder's owner")
 CANNOT_WRITE_FILE = "cannot write the file: {reason}"
 NOT_A_REGULAR_TARGET = ("not a regular file (a folder, a device, a pipe or a socket is "
                         "never written over)")
