@@ -627,6 +627,8 @@ def _check_pin_exists(library, part_id, pf, data, keys, text: str = "") -> None:
     """A side must exist (here or in a parent) before a value is recorded on it, and a pin
     before a value is recorded on the pin; a refusal names the file (and the line of
     the table the value would go in)."""
+    if keys[0] != "sides" and "pins" not in keys:
+        return
     files = dict(library.files)
     files[part_id] = loader.PartFile(pf.path, data, "", False)
     try:
