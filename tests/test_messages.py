@@ -1378,6 +1378,17 @@ def _(env):
     return _pin_of_a_bridge(env).message
 
 
+@case("SET_ELSEWHERE", M.SET_ELSEWHERE.format(
+    places="supply.max in i2c-peripheral.toml:9"))
+def _(env):
+    # invented test part: its supply.min above the maximum the built-in class states
+    err = _fails(lambda e: e.part('format = "pinlib.part/1"\nid = "p"\ntitle = "T"\n'
+                                  'category = "memory"\nextends = "eeprom-i2c"\n'
+                                  'supply = { min = "6 V" }\n'), env)
+    assert (err.field, err.line) == ("supply.min", 6)
+    return err.hint
+
+
 @case("TITLE_BLANK")
 def _(env):
     return _fails(lambda e: e.part(PART.format(id="p").replace('"Team target"', '"  "')), env)

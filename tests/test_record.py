@@ -309,6 +309,20 @@ def test_a_refused_field_names_the_part_file_and_its_table_line(lib_dirs, field,
     assert info.value.line == line
 
 
+def test_a_value_refused_beside_a_class_value_names_where_the_class_sets_it(tmp_path,
+                                                                           monkeypatch):
+    # invented test part.  "supply max 5.5 V is below min 6 V" named the team file with
+    # no line (it has no supply yet) and not where the 5.5 V comes from
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    path = new_part(load_library([], env=False), "ee", "eeprom-i2c", tmp_path,
+                    source="rev A")
+    with pytest.raises(LibraryError) as info:
+        record_value(load_library([tmp_path], env=False), "ee", "supply.min", "6 V", "rev A")
+    err = info.value
+    assert (err.file, err.field, err.line) == (str(path), "supply.min", None)
+    assert err.hint == "beside supply.max in i2c-peripheral.toml:9, set by a class it extends"
+
+
 def test_a_side_the_bridge_lacks_is_named_with_its_sides(tmp_path, monkeypatch):
     # invented test part extending the built-in repeater: "sides.c.sda.c_in" was "the
     # part has no such pin ... expected one of its pins (none)"

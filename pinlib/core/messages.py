@@ -216,6 +216,8 @@ NO_SUCH_PIN = "the part has no such pin"
 PINS_ON_SIDES = "a bridging part has no pins of its own: its pins are on its sides"
 SIDE_PIN_PATHS = "the file holds such a value in {tables}"
 NO_SUCH_SIDE = "the part has no side '{side}'"
+# loader.py: the hint of a problem of several fields, where the others were set
+SET_ELSEWHERE = "beside {places}, set by a class it extends"
 ONE_OF_ITS_SIDES = "one of its sides ({sides})"
 NO_SIDES = "the part has no sides: only a bridging part has them"
 NO_SIDES_EXPECTED = "PIN.FIELD on one of its own pins ({pins})"
