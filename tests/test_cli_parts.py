@@ -400,6 +400,19 @@ def test_show_makes_a_title_s_escape_codes_visible_even_those_like_pinlib_s_own(
 
 # --- new and record ----------------------------------------------------------------------
 
+@pytest.mark.parametrize(("title", "problem"), [
+    ("", "an empty title"), ("   ", "an empty title"),
+    ("two\nlines", "a title of more than one line")])
+def test_new_refuses_a_blank_title_or_one_of_two_lines(lib, capsys, title, problem):
+    # invented titles: each was written into the new file
+    _, team = lib
+    code, out, err = run(capsys, "parts", "new", "flash-b", "--from", "flash", "--into",
+                         "team", "--title", title)
+    assert code == 2 and not out
+    assert f"field '--title': {problem}" in " ".join(err.split())
+    assert "Traceback" not in err and not (team / "flash-b.toml").exists()
+
+
 def test_new_then_record(lib, capsys):
     _, team = lib
     code, out, _ = run(capsys, "parts", "new", "flash-b", "--from", "flash", "--into", "team",
@@ -633,7 +646,7 @@ def test_record_holds_a_typical_level_to_the_limit_s_range(lib, capsys):
                        "9 VDD", "--source", "rev B", "--library", "team")
     err = " ".join(err.split())
     assert code == 2 and "field 'pins.sda.v_il.typ'" in err, err
-    assert "(got '9 VDD')" in err and "a scale of VDD within ±2" in err
+    assert "(got '9 VDD')" in err and "a multiple of VDD within ±2" in err
     assert (lib[1] / "eeprom.toml").read_bytes() == before
 
 
@@ -892,3 +905,25 @@ def test_check_keeps_a_long_path_whole_on_a_line_of_its_own(lib, capsys, tmp_pat
     assert lines[i + 1] == "a.toml:10," and lines[i + 2].startswith("    field 'pins.sda.c_in'")
     # the closing line's "<path>:" (79 characters) whole and unindented
     assert lines[-3:] == ["checked 1 file in", rel + ":", "    1 problem"]
+
+
+@pytest.mark.parametrize(("cls", "field"), [
+    ("ribbon-cable", "line.capacitance"), ("i2c-repeater", "sides.a.PIN.FIELD"),
+    ("eeprom-i2c", "PIN.FIELD")])
+def test_new_names_a_field_the_class_has_as_the_next_step(tmp_path, monkeypatch, capsys,
+                                                          cls, field):
+    # a cable has no pins: its next step read "pinlib parts record x PIN.FIELD ...", and
+    # so did the comment the new file opens with
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    monkeypatch.setenv("COLUMNS", "80")
+    code, out, _ = run(capsys, "parts", "new", "x-part", "--from", cls, "--into",
+                       str(tmp_path), "--source", "invented rev A")
+    assert code == 0
+    assert f"next: pinlib parts record x-part {field} \"VALUE\"" in out
+    assert all(len(line) <= 80 for line in out.splitlines())
+    text = (tmp_path / "x-part.toml").read_text(encoding="utf-8")
+    assert f'#   pinlib parts record x-part {field} "VALUE"' in text
+    if field == "line.capacitance":  # the step it names is one that works
+        code, out, err = run(capsys, "parts", "record", "x-part", field, "60 pF/m",
+                             "--source", "invented rev A", "--library", str(tmp_path))
+        assert code == 0, err

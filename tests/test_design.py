@@ -95,7 +95,7 @@ BAD = {
                     "expected more than 0 Hz and at most 100 GHz"]),
     "clock-too-high": (ONE_BUS.replace('supply = "3.3 V"', 'supply = "3.3 V"\nclock = "200 GHz"')
                        .replace("PART", "t-target"), "bus[0].clock", 9,
-                       ["outside the plausible range", "'200 GHz'",
+                       ["outside the allowed range", "'200 GHz'",
                         "expected more than 0 Hz and at most 100 GHz"]),
     "negative-capacitance": (ONE_BUS.replace('supply = "3.3 V"',
                                              'supply = "3.3 V"\nextra_capacitance = "-1 pF"')

@@ -238,6 +238,55 @@ def _(env):
     return _fails(lambda e: atomic_write(e.tmp / "missing-folder" / "x.toml", "x = 1\n"), env)
 
 
+def _denied(env, errno_code, lock_there=False):
+    # the file system refuses the lock file (as it does a user who may not write in
+    # the folder; root, which runs these tests, may write anywhere)
+    if lock_there:
+        (env.tmp / ".x.toml.lock").write_text("")
+    real_open = os.open
+
+    def refuse(path, *args, **kw):
+        if str(path).endswith(".lock"):
+            raise OSError(errno_code, os.strerror(errno_code), str(path))
+        return real_open(path, *args, **kw)
+    env.monkeypatch.setattr(os, "open", refuse)
+
+    def lock(e):
+        with file_lock(e.tmp / "x.toml"):
+            pass
+    return _fails(lock, env)
+
+
+def _user():
+    import pwd
+
+    return pwd.getpwuid(os.geteuid()).pw_name
+
+
+@case("FOLDER_NOT_WRITABLE", lambda: M.FOLDER_NOT_WRITABLE.format(folder="{tmp}", user=_user()))
+def _(env):
+    err = _denied(env, errno.EACCES)
+    assert err.file == str((env.tmp / "x.toml").resolve())
+    # the folder is named as it is, the test's own folder not known to the case list
+    return err.problem.replace(str(env.tmp.resolve()), "{tmp}")
+
+
+@case("WRITABLE_FOLDER_HINT")
+def _(env):
+    return _denied(env, errno.EPERM).message
+
+
+@case("FOLDER_READ_ONLY_FS", M.FOLDER_READ_ONLY_FS.format(folder="{tmp}"))
+def _(env):
+    return _denied(env, errno.EROFS).problem.replace(str(env.tmp.resolve()), "{tmp}")
+
+
+@case("LOCK_NOT_WRITABLE", lambda: M.CANNOT_LOCK.format(reason=M.LOCK_NOT_WRITABLE.format(
+    lock=".x.toml.lock", user=_user())))
+def _(env):
+    return _denied(env, errno.EACCES, lock_there=True)
+
+
 @case("CANNOT_WRITE_FILE", M.CANNOT_WRITE_FILE.format(reason=os.strerror(errno.EACCES)))
 def _(env):
     def refuse(src, dst):
@@ -690,6 +739,17 @@ def _(env):
     return _typ_beyond(env).message
 
 
+@case("TYP_NEED_RULE", M.TYP_NEED_RULE.format(field="t_su_dat"))
+def _(env):
+    # invented test part: a typical data setup need above the guaranteed one
+    from pinlib.library.plausible import part_warnings
+
+    text = PART.format(id="p") + '\n[timing]\nt_su_dat = { value = "100 ns", typ = "250 ns" }\n'
+    (got,) = part_warnings(env.part(text).get("p"), None)
+    assert got.field == "timing.t_su_dat.typ" and got.value == "250 ns"
+    return got.message
+
+
 def _below_ground(env):
     env.write("team/p.toml", PART.format(id="p").replace(
         'c_in = "8 pF"', 'c_in = "8 pF"\nv_ol = "VDD - 2.9 V"\ni_ol = "3 mA"', 1))
@@ -1000,7 +1060,18 @@ def _(env):
 
 @case("OUTSIDE_RANGE")
 def _(env):
-    return _fails(lambda e: e.part(_pin_value('"1 F"')), env)
+    err = _fails(lambda e: e.part(_pin_value('"1 F"')), env)
+    assert err.expected == "at least 0 F and at most 100 nF"
+    return err
+
+
+@case("LEVEL_RANGE", M.LEVEL_RANGE.format(lo="-50", hi="50"))
+def _(env):
+    # invented test part: a level three times the supply
+    err = _fails(lambda e: e.part(PART.format(id="p").replace(
+        'c_in = "8 pF"\n', 'c_in = "8 pF"\nv_il = "3 VDD"\n', 1)), env)
+    assert err.problem == M.OUTSIDE_RANGE
+    return err.expected
 
 
 # ---------------------------------------------------------------- records: kinds and forms
@@ -1325,6 +1396,66 @@ def _(env):
                                                        "[sides.b.pins.sda]"))
 def _(env):
     return _pin_of_a_bridge(env).message
+
+
+@case("SET_ELSEWHERE", M.SET_ELSEWHERE.format(
+    places="supply.max in i2c-peripheral.toml:9"))
+def _(env):
+    # invented test part: its supply.min above the maximum the built-in class states
+    err = _fails(lambda e: e.part('format = "pinlib.part/1"\nid = "p"\ntitle = "T"\n'
+                                  'category = "memory"\nextends = "eeprom-i2c"\n'
+                                  'supply = { min = "6 V" }\n'), env)
+    assert (err.field, err.line) == ("supply.min", 6)
+    return err.hint
+
+
+@case("TITLE_BLANK")
+def _(env):
+    return _fails(lambda e: e.part(PART.format(id="p").replace('"Team target"', '"  "')), env)
+
+
+@case("TITLE_NOT_ONE_LINE")
+def _(env):
+    return _fails(lambda e: e.part(PART.format(id="p").replace('"Team target"',
+                                                              '"Team\\ntarget"')), env)
+
+
+@case("TITLE_EXPECTED")
+def _(env):
+    lib = load_library([], env=False)
+    return _fails(lambda e: rec.new_part(lib, "p", "eeprom-i2c", e.tmp / "team", title=""),
+                  env).expected
+
+
+def _side_of_a_bridge(env, side="c"):
+    lib = load_library([], env=False)
+    rec.new_part(lib, "rp", "i2c-repeater", env.tmp / "team", source="rev A")
+    lib = load_library([env.tmp / "team"], env=False)
+    return _fails(lambda e: rec.record_value(lib, "rp", f"sides.{side}.sda.c_in", "9 pF",
+                                             "rev A"), env)
+
+
+@case("NO_SUCH_SIDE", M.NO_SUCH_SIDE.format(side="c"))
+def _(env):
+    return _side_of_a_bridge(env)
+
+
+@case("ONE_OF_ITS_SIDES", M.ONE_OF_ITS_SIDES.format(sides="a, b"))
+def _(env):
+    return _side_of_a_bridge(env).expected
+
+
+@case("NO_SIDES")
+def _(env):
+    lib = env.team("p")
+    return _fails(lambda e: rec.record_value(lib, "p", "sides.a.sda.c_in", "9 pF", "rev A"), env)
+
+
+@case("NO_SIDES_EXPECTED", M.NO_SIDES_EXPECTED.format(pins="scl, sda"))
+def _(env):
+    lib = env.team("p")
+    return _fails(lambda e: rec.record_value(lib, "p", "sides.a.sda.c_in", "9 pF", "rev A"),
+                  env).expected
 
 
 # ---------------------------------------------------------------- design

@@ -317,3 +317,106 @@ devices = [
     err = capsys.readouterr().err
     assert "pinlib: warning: nosrc-target:" in err and "field 'pins.sda.c_in'" in err
     assert "basis 'datasheet' but no source" in err
+
+
+TIMING_TYP = """\
+format = "pinlib.part/1"
+id = "t-timing"
+title = "Invented part with typical timing beside its limits (test data)"
+category = "{category}"
+extends = "{parent}"
+provenance = {{ basis = "datasheet", source = "invented rev A" }}
+
+[timing]
+{timing}
+"""
+
+# every timing field with a side, its typical value on the wrong side for a part that
+# is not a controller: output delays are maximums, setups, holds and widths what the
+# part must be given (its typical need at or below the guaranteed one)
+_WRONG_SIDE = {
+    "t_vd_dat": ("0.9 us", "2 us"), "t_vd_ack": ("0.9 us", "1 us"),
+    "t_cs_valid": ("20 ns", "25 ns"), "t_valid": ("20 ns", "25 ns"),
+    "t_pd": ("20 ns", "25 ns"), "t_su_dat": ("100 ns", "250 ns"),
+    "t_hd_dat": ("10 ns", "20 ns"), "t_setup": ("5 ns", "8 ns"), "t_hold": ("5 ns", "8 ns"),
+    "t_cs_setup": ("10 ns", "20 ns"), "t_cs_hold": ("10 ns", "20 ns"),
+    "t_low": ("1.3 us", "2 us"), "t_high": ("0.6 us", "1 us"),
+}
+
+
+def _timing_warnings(team, category, parent, fields):
+    timing = "\n".join(f'{f} = {{ value = "{v}", typ = "{t}" }}' for f, (v, t) in fields.items())
+    (team / "t-timing.toml").write_text(TIMING_TYP.format(category=category, parent=parent,
+                                                          timing=timing), encoding="utf-8")
+    lib = load_library([team], env=False)
+    return {w.field: w for w in part_warnings(lib.get("t-timing"), lib)}
+
+
+def test_every_timing_limit_checks_the_side_of_its_typical_value(team):
+    # invented test part.  t_vd_dat 0.9 us beside a typical 2 us gave no warning
+    got = _timing_warnings(team, "memory", "eeprom-i2c", _WRONG_SIDE)
+    assert sorted(got) == sorted(f"timing.{f}.typ" for f in _WRONG_SIDE)
+    assert got["timing.t_vd_dat.typ"].expected.startswith(
+        "a typ at most the value, which for t_vd_dat is the maximum")
+    assert got["timing.t_su_dat.typ"].expected.startswith(
+        "a typ at most the value: t_su_dat is the least the part must be given")
+    assert got["timing.t_vd_dat.typ"].file.endswith("t-timing.toml")
+    assert got["timing.t_vd_dat.typ"].line == 9
+    # the right side: no problem
+    right = {f: (t, v) for f, (v, t) in _WRONG_SIDE.items()}
+    assert _timing_warnings(team, "memory", "eeprom-i2c", right) == {}
+
+
+def test_a_controller_gives_its_lead_lag_and_widths_at_least_as_stated(team):
+    # invented test part.  A controller's t_cs_setup, t_cs_hold, t_low, t_high, t_su_dat
+    # and t_hd_dat are what it gives (docs/formats/part.md): typically more than the
+    # minimum; its t_setup and t_hold stay what it needs
+    given = {f: _WRONG_SIDE[f] for f in ("t_cs_setup", "t_cs_hold", "t_low", "t_high",
+                                         "t_su_dat", "t_hd_dat")}
+    assert _timing_warnings(team, "controller", "mcu-3v3", given) == {}
+    short = {f: (v, t) for f, (t, v) in given.items()}
+    got = _timing_warnings(team, "controller", "mcu-3v3", short)
+    assert sorted(got) == sorted(f"timing.{f}.typ" for f in given)
+    assert "which for t_cs_setup is the minimum" in got["timing.t_cs_setup.typ"].expected
+    need = _timing_warnings(team, "controller", "mcu-3v3", {"t_setup": ("5 ns", "8 ns")})
+    assert list(need) == ["timing.t_setup.typ"]
+
+
+def test_a_bridge_offset_threshold_and_transition_limit_check_their_typical_value(team):
+    # invented test parts: a repeater's low_offset and a pass transistor's v_gs_th are
+    # maximums, as is a pin's t_transition_max
+    (team / "rep.toml").write_text(textwrap.dedent("""\
+        format = "pinlib.part/1"
+        id = "rep"
+        title = "Invented repeater (test data)"
+        category = "buffer"
+        extends = "i2c-repeater"
+
+        [sides.b]
+        low_offset = { value = "0.6 V", typ = "0.7 V" }
+        """), encoding="utf-8")
+    (team / "xl.toml").write_text(textwrap.dedent("""\
+        format = "pinlib.part/1"
+        id = "xl"
+        title = "Invented translator (test data)"
+        category = "translator"
+        extends = "level-translator-mosfet"
+
+        [bridge]
+        v_gs_th = { value = "1.5 V", typ = "1.8 V" }
+        """), encoding="utf-8")
+    lib = load_library([team], env=False)
+    assert [w.field for w in part_warnings(lib.get("rep"), lib, own_only=True)] == [
+        "sides.b.low_offset.typ"]
+    assert [w.field for w in part_warnings(lib.get("xl"), lib, own_only=True)] == [
+        "bridge.v_gs_th.typ"]
+
+
+def test_recording_a_typical_output_delay_above_its_maximum_warns(team, capsys):
+    # invented test part; the audit's command: no warning was given
+    (team / "t-timing.toml").write_text(TIMING_TYP.format(
+        category="memory", parent="eeprom-i2c", timing=""), encoding="utf-8")
+    assert main(["parts", "record", "t-timing", "timing.t_vd_dat", "0.9 us", "--typ", "2 us",
+                 "--source", "invented rev A", "--library", str(team)]) == 0
+    err = " ".join(capsys.readouterr().err.split())
+    assert "field 'timing.t_vd_dat.typ': the typical value lies beyond the limit" in err

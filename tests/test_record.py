@@ -166,7 +166,7 @@ def test_inline_supply_table_stays_on_its_line(lib_dirs):
 @pytest.mark.parametrize(("field", "value", "match"), [
     ("sda.c_in", "10 pH", "capacitance"),
     ("sda.c_in", "8", "bare number"),
-    ("sda.c_in", "4k7", "plausible range"),
+    ("sda.c_in", "4k7", "allowed range"),
     ("sda.v_il", "0.3 VCC", "relative to the supply"),
     # the class runs to 5.5 V: the minimum written is the value refused, not the class
     ("supply.min", "6 V", "value is refused: supply max 5.5 V is below min 6 V"),
@@ -250,8 +250,23 @@ def test_refused_value_is_quoted_as_typed(lib_dirs, value):
     assert f"(got '{value}')" in str(info.value) and "1e288" not in str(info.value)
 
 
+def test_a_refusal_says_allowed_range_in_the_units_of_the_format_table(tmp_path):
+    # invented test part: a team cable class extending the built-in ribbon-cable.  A
+    # refusal is "outside the allowed range" ("plausible" is the range that only warns)
+    # and states it per metre, as docs/formats/part.md does (it read "at least 10 ps/cm
+    # and at most 10 ns/cm" beside a documented 1 ns/m to 1 µs/m)
+    new_part(load_library([], env=False), "x-cable", "ribbon-cable", tmp_path,
+             source="catalogue p. 3")
+    with pytest.raises(LibraryError) as info:
+        record_value(load_library([tmp_path], env=False), "x-cable", "line.delay",
+                     "0.5 ns/m", "catalogue p. 3")
+    assert info.value.problem == "the value is refused: outside the allowed range"
+    assert info.value.expected == "at least 1 ns/m and at most 1 µs/m"
+    assert "plausible" not in str(info.value)
+
+
 @pytest.mark.parametrize(("typ", "match"), [("-3 pF", "negative"),
-                                            ("1e300 pF", "plausible range")])
+                                            ("1e300 pF", "allowed range")])
 def test_a_typical_value_is_held_to_the_limits_of_its_field(lib_dirs, typ, match):
     # a typical c_in of -3 pF was recorded without a word
     _, team = lib_dirs
@@ -275,6 +290,52 @@ def test_unknown_fields_are_refused(lib_dirs, field, match):
     with pytest.raises(LibraryError, match=match):
         record_value(load(team), "child", field, "8 pF", "rev C")
     assert (team / "child.toml").read_bytes() == before
+
+
+@pytest.mark.parametrize(("field", "line", "problem"), [
+    # a pin the part lacks: at the first pin table; a misspelt field: at its pin's table
+    ("sdx.c_in", 10, "the part has no such pin"), ("sda.c_inn", 10, "unknown field"),
+    ("timing.fmax", 19, "unknown field"), ("scl.c_in.x", 16, "a value field has no sub-fields"),
+    ("sides.a.sda.c_in", None, "the part has no sides: only a bridging part has them"),
+])
+def test_a_refused_field_names_the_part_file_and_its_table_line(lib_dirs, field, line,
+                                                               problem):
+    # invented test part.  "sdx.c_in" and "sda.c_inn" were refused without the file
+    _, team = lib_dirs
+    with pytest.raises(LibraryError) as info:
+        record_value(load(team), "child", field, "8 pF", "rev C")
+    assert info.value.problem == problem
+    assert info.value.file == str(team / "child.toml")
+    assert info.value.line == line
+
+
+def test_a_value_refused_beside_a_class_value_names_where_the_class_sets_it(tmp_path,
+                                                                           monkeypatch):
+    # invented test part.  "supply max 5.5 V is below min 6 V" named the team file with
+    # no line (it has no supply yet) and not where the 5.5 V comes from
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    path = new_part(load_library([], env=False), "ee", "eeprom-i2c", tmp_path,
+                    source="rev A")
+    with pytest.raises(LibraryError) as info:
+        record_value(load_library([tmp_path], env=False), "ee", "supply.min", "6 V", "rev A")
+    err = info.value
+    assert (err.file, err.field, err.line) == (str(path), "supply.min", None)
+    assert err.hint == "beside supply.max in i2c-peripheral.toml:9, set by a class it extends"
+
+
+def test_a_side_the_bridge_lacks_is_named_with_its_sides(tmp_path, monkeypatch):
+    # invented test part extending the built-in repeater: "sides.c.sda.c_in" was "the
+    # part has no such pin ... expected one of its pins (none)"
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    path = new_part(load_library([], env=False), "rep", "i2c-repeater", tmp_path,
+                    source="rev A")
+    with pytest.raises(LibraryError) as info:
+        record_value(load_library([tmp_path], env=False), "rep", "sides.c.sda.c_in",
+                     "8 pF", "rev A")
+    err = info.value
+    assert (err.problem, err.field, err.file) == ("the part has no side 'c'", "sides.c",
+                                                  str(path))
+    assert err.expected == "one of its sides (a, b)" and err.hint == "e.g. sides.a.sda.c_in"
 
 
 def test_a_source_pasted_over_two_lines_is_written_as_one(lib_dirs):
@@ -324,16 +385,12 @@ def test_refuses_to_write_into_the_builtin_library(lib_dirs):
 
 
 @pytest.mark.parametrize("title, head", [
-    ("Line one\nformat = 3", "# Line one format = 3"),
-    ("tab\tand\r\nreturn", "# tab and return"),
     ("bell\x07", "# bell"),
-    ("next\x85line", "# next line"),
-    ("para\u2029graph", "# para graph"),
+    ("tab\there", "# tab here"),
 ])
-def test_a_title_with_a_line_break_stays_one_comment(lib_dirs, title, head):
-    # Once a traceback (TOMLDecodeError): the title, written as the first comment, was cut
-    # by its line break, and the rest read as TOML ("format = 3" a second format key) or
-    # held a character no TOML comment may hold.  The title itself is kept as given.
+def test_a_title_with_a_control_character_stays_one_comment(lib_dirs, title, head):
+    # Once a traceback (TOMLDecodeError): the title, written as the first comment, held a
+    # character no TOML comment may hold.  The title itself is kept as given.
     _, team = lib_dirs
     lib = load(team)
     path = new_part(lib, "fresh", "base", team, title=title)
@@ -341,6 +398,40 @@ def test_a_title_with_a_line_break_stays_one_comment(lib_dirs, title, head):
     assert tomllib.loads(text)["title"] == title
     assert load(team).parts["fresh"].title == title
     assert text.splitlines()[0] == head
+
+
+@pytest.mark.parametrize(("title", "problem"), [
+    ("", "an empty title"), ("   ", "an empty title"), ("\t\n", "an empty title"),
+    ("Line one\nformat = 3", "a title of more than one line"),
+    ("tab\tand\r\nreturn", "a title of more than one line"),
+    ("next\x85line", "a title of more than one line"),
+    ("para\u2029graph", "a title of more than one line"),
+])
+def test_a_blank_title_or_one_of_several_lines_is_refused(lib_dirs, title, problem):
+    # invented titles.  The format says a title is one line: "" and "   " were written,
+    # and a title with a line break was stored with its "\n"
+    _, team = lib_dirs
+    with pytest.raises(InputError) as info:
+        new_part(load(team), "fresh", "base", team, title=title)
+    assert (info.value.problem, info.value.field, info.value.value) == (problem, "title", title)
+    assert not (team / "fresh.toml").exists()
+
+
+@pytest.mark.parametrize(("written", "problem"), [
+    ('""', "an empty title"), ('"  "', "an empty title"),
+    ('"Serial EEPROM\\nsecond line"', "a title of more than one line"),
+    ('"""\nSerial EEPROM\nsecond line"""', "a title of more than one line"),
+])
+def test_a_part_file_whose_title_is_blank_or_several_lines_is_refused(lib_dirs, written,
+                                                                      problem):
+    # invented test part: parts check names the file, line and field
+    _, team = lib_dirs
+    (team / "child.toml").write_text(CHILD.replace('title = "Serial EEPROM"',
+                                                   f"title = {written}"), encoding="utf-8")
+    lib = load_library([team])
+    (err,) = [p for p in lib.problems if p.field == "title"]
+    assert (err.problem, err.file, err.line) == (problem, str(team / "child.toml"), 4)
+
 
 @pytest.mark.parametrize("new_id", ["b", "x" * 64])
 def test_a_new_part_file_fits_80_columns(lib_dirs, new_id):
@@ -763,3 +854,37 @@ def test_a_lock_left_by_a_killed_writer_is_taken_over(tmp_path):
     record_value(load_library([team], builtin=False, env=False), "many", "p99.c_in",
                  "1 pF", "after the kill")
     assert _c_in_values(path)[99] == "1 pF" and not lock.exists()
+
+
+def test_a_folder_this_user_may_not_write_in_is_named(tmp_path, monkeypatch):
+    # "cannot lock the file: Permission denied" did not say what was not writable.  Root
+    # writes anywhere: it runs the command without the capability that lets it
+    import shutil
+
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    prefix = []
+    if os.geteuid() == 0:
+        if not shutil.which("setpriv"):
+            pytest.skip("root without setpriv writes in any folder")
+        prefix = ["setpriv", "--bounding-set=-dac_override,-dac_read_search,-fowner"]
+    folder = tmp_path / "ro"
+    path = new_part(load_library([], env=False), "ro-part", "eeprom-i2c", folder,
+                    source="rev A")
+    before = path.read_bytes()
+    folder.chmod(0o555)
+    env = dict(os.environ, COLUMNS="80", PINLIB_CACHE_DIR="off",
+               PYTHONPATH=str(Path(__file__).resolve().parents[1]))
+    try:
+        for argv in (["record", "ro-part", "sda.c_in", "5 pF", "--source", "rev A"],
+                     ["new", "ro-two", "--from", "eeprom-i2c", "--into", str(folder)]):
+            run = subprocess.run([*prefix, sys.executable, "-m", "pinlib", "parts", *argv,
+                                  "--library", str(folder)], capture_output=True, text=True,
+                                 env=env, timeout=60)
+            err = " ".join(run.stderr.split())
+            assert run.returncode == 2, err
+            assert f"the folder {folder} is not writable by this user" in err, err
+            assert "Traceback" not in err and "Permission denied" not in err
+    finally:
+        folder.chmod(0o755)
+    assert path.read_bytes() == before
+    assert sorted(p.name for p in folder.iterdir()) == ["ro-part.toml"]

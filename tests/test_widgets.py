@@ -840,7 +840,7 @@ def test_recorder_records_next_into_the_part_just_created(tmp_path):
 @pytest.mark.parametrize("form, beside, words", [
     ({"value": "12"}, "value", "no unit"),
     ({"value": "12 pH"}, "value", "H where a capacitance"),
-    ({"value": "4k7"}, "value", "plausible range"),
+    ({"value": "4k7"}, "value", "allowed range"),
     ({"typ": "9 pH"}, "typ", "H where a capacitance"),
     ({"field": "sda.c_inn"}, "field", "unknown field"),
     ({"field": "xyz.c_in"}, "field", "no such pin"),

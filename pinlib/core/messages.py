@@ -32,7 +32,9 @@ __all__ = ["MODULES", "all_messages"]
 
 # ---------------------------------------------------------------- shared by several modules
 NEGATIVE_VALUE = "a negative value"
-OUTSIDE_RANGE = "outside the plausible range"
+# a hard refusal: "plausible" is the soft range of pinlib/library/plausible.py, which
+# only warns (docs/formats/part.md)
+OUTSIDE_RANGE = "outside the allowed range"
 UNKNOWN_PART = "unknown part"
 UNKNOWN_FIELD = "unknown field"
 MISSING_FIELD = "a required field is missing"
@@ -56,6 +58,13 @@ NOT_TOML = "not valid TOML: {detail}"
 CANNOT_LOCK = "cannot lock the file: {reason}"
 LOCK_IS_A_LINK = "its lock file {lock} is a symbolic link, which pinlib does not follow"
 CANNOT_WRITE_IN_FOLDER = "cannot write in this folder: {reason}"
+FOLDER_NOT_WRITABLE = "the folder {folder} is not writable by this user ({user})"
+FOLDER_READ_ONLY_FS = "the folder {folder} is on a read-only file system"
+LOCK_NOT_WRITABLE = "its lock file {lock} is not writable by this user ({user})"
+# the hint of FOLDER_NOT_WRITABLE
+WRITABLE_FOLDER_HINT = ("pinlib writes its lock file and the new file in that folder: use "
+                        "a folder this user may write in (a copy of the files), or ask the "
+                        "folder's owner")
 CANNOT_WRITE_FILE = "cannot write the file: {reason}"
 NOT_A_REGULAR_TARGET = ("not a regular file (a folder, a device, a pipe or a socket is "
                         "never written over)")
@@ -152,11 +161,17 @@ CABLE_NEEDS_TWO_OF_THREE = ("a cable class gives its capacitance per length, or 
 VALUE_TABLE_UNKNOWN_KEY = "unknown key '{key}' in a value table"
 VALUE_TABLE_WITHOUT_VALUE = "a value table without 'value'"
 SOURCE_NOT_TEXT = "a source must be text"
+# the expected text of OUTSIDE_RANGE for a level (docs/formats/part.md, "Levels that
+# follow the supply")
+LEVEL_RANGE = "a multiple of VDD within ±2 plus an offset within {lo} V to {hi} V"
 # plausible.py (warnings: the part still loads)
 IMPLAUSIBLE_VALUE = "an implausible value for this field"
 TYP_BEYOND_LIMIT = "the typical value lies beyond the limit beside it, {limit}"
 TYP_SIDE_RULE = ("a typ {rel} the value, which for {field} is the {side} (one of "
                  "them mistyped, or the two swapped?)")
+TYP_NEED_RULE = ("a typ at most the value: {field} is the least the part must be given, and "
+                 "its typical need lies at or below it (one of them mistyped, or the two "
+                 "swapped?)")
 PLAUSIBLE_RANGE = "{range} (common practice, no source)"
 FAST_CORNER_WEAKER = "the fast corner's r_out is above the slow corner's {slow}: corners swapped?"
 FAST_CORNER_RULE = "a fast corner's r_out at most the pin's own r_out (the slow corner)"
@@ -177,6 +192,10 @@ PATH_STOPS_AT_NAMED_TABLE = "the path stops at a table of named items"
 FIELD_TAKES_NO_VALUE = "this field takes no recorded value: {what}"
 PATH_STOPS_BEFORE_FIELD = "the path stops before a field"
 FIELD_WITHOUT_PIN = "a pin's field without its pin"
+# schema.py: a part's title
+TITLE_BLANK = "an empty title"
+TITLE_NOT_ONE_LINE = "a title of more than one line"
+TITLE_EXPECTED = "one line of text for people (e.g. 'Serial EEPROM, I2C, 1.7 to 5.5 V')"
 # record.py
 BUILTIN_NOT_WRITTEN = "the built-in library is not written to"
 BUILTIN_NOT_WRITTEN_BECAUSE = "the built-in library is not written to ({reason})"
@@ -201,6 +220,12 @@ CANNOT_KEEP_LAYOUT = "cannot set this value while keeping the file's layout"
 NO_SUCH_PIN = "the part has no such pin"
 PINS_ON_SIDES = "a bridging part has no pins of its own: its pins are on its sides"
 SIDE_PIN_PATHS = "the file holds such a value in {tables}"
+NO_SUCH_SIDE = "the part has no side '{side}'"
+# loader.py: the hint of a problem of several fields, where the others were set
+SET_ELSEWHERE = "beside {places}, set by a class it extends"
+ONE_OF_ITS_SIDES = "one of its sides ({sides})"
+NO_SIDES = "the part has no sides: only a bridging part has them"
+NO_SIDES_EXPECTED = "PIN.FIELD on one of its own pins ({pins})"
 
 # ---------------------------------------------------------------- pinlib/model/design/
 NOT_A_DESIGN = "not a design file"

@@ -577,8 +577,11 @@ def format_value(value, unit: str) -> str:
     return format_si(x, unit)
 
 
-def format_si(value, unit: str, digits: int = 3) -> str:
+def format_si(value, unit: str, digits: int = 3, *, per: str = "cm") -> str:
     """Format an SI float with an SI prefix and ``digits`` significant digits.
+
+    A per-length value (a unit with ``/m``) is shown per centimetre, as boards read it,
+    or per metre with ``per="m"`` (the part format's tables, a cable's catalogue).
 
     >>> format_si(2200.0, "Ω")
     '2.2 kΩ'
@@ -597,22 +600,23 @@ def format_si(value, unit: str, digits: int = 3) -> str:
     if unit == "%":
         return f"{_sig(value * 100.0, digits)} %"
     if "/" in unit:
-        return _per_length(value, unit, digits)
+        return _per_length(value, unit, digits, per)
     if value == 0.0:
         return f"0 {unit}".strip()
     return _rendered(value, unit, digits)
 
 
 def range_text(lo: float | None, hi: float | None, unit: str = "", *,
-               above: bool = False, below: bool = False) -> str:
+               above: bool = False, below: bool = False, per: str = "cm") -> str:
     """What a range accepts, in the words of the test it applies, for an error's
     ``expected``: ``"at least 10 µm and at most 100 mm"``; with ``above`` (the low end
     itself refused) ``"more than 0 Hz and at most 100 GHz"``; with ``below`` (the high
     end refused) ``"... and less than 1"``.  Without a unit the bounds are plain
-    numbers."""
+    numbers; a per-length range is stated per centimetre, or per metre with ``per="m"``
+    (:func:`format_si`)."""
 
     def shown(x):
-        return format_si(x, unit) if unit else f"{x:g}"
+        return format_si(x, unit, per=per) if unit else f"{x:g}"
 
     ends = []
     if lo is not None:
@@ -649,9 +653,12 @@ def _rendered(value: float, unit: str, digits: int) -> str:
     return f"{number}e{eng} {unit}".strip()
 
 
-def _per_length(value: float, unit: str, digits: int) -> str:
-    """Per-length values read best per centimetre on boards: '0.8 pF/cm', '58 ps/cm'."""
+def _per_length(value: float, unit: str, digits: int, per: str = "cm") -> str:
+    """Per-length values read best per centimetre on boards: '0.8 pF/cm', '58 ps/cm';
+    ``per="m"``: per metre, '80 pF/m'."""
     base = unit.split("/")[0]
+    if per == "m":
+        return f"{format_si(value, base, digits)}/m"
     return f"{format_si(value * 0.01, base, digits)}/cm"
 
 

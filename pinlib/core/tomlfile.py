@@ -418,7 +418,40 @@ def _open_lock(lock_path: Path, target: Path) -> int:
     try:
         return os.open(lock_path, flags, 0o644)
     except OSError as exc:
+        refused = _not_writable(exc, lock_path.parent, target, lock_path)
+        if refused is not None:
+            raise refused from None
         raise WriteError(M.CANNOT_LOCK.format(reason=exc.strerror), file=str(target)) from None
+
+
+def _user() -> str:
+    """This process's user name (its number where it has none)."""
+    try:
+        import pwd
+
+        return pwd.getpwuid(os.geteuid()).pw_name
+    except (ImportError, KeyError, AttributeError):  # pragma: no cover - Windows, no entry
+        return str(getattr(os, "geteuid", lambda: "?")())
+
+
+def _not_writable(exc: OSError, folder: Path, target: Path,
+                  lock: Path | None = None) -> WriteError | None:
+    """The refusal for a write the file system denies: a folder this user may not write
+    in, one on a read-only file system, or (``lock``) a lock file left by another user;
+    None for any other failure."""
+    import errno
+
+    shown = str(folder) if str(folder) else "."
+    if exc.errno == errno.EROFS:
+        return WriteError(M.FOLDER_READ_ONLY_FS.format(folder=shown), file=str(target))
+    if exc.errno not in (errno.EACCES, errno.EPERM):
+        return None
+    if lock is not None and os.access(folder, os.W_OK | os.X_OK) and lock.exists():
+        return WriteError(M.CANNOT_LOCK.format(reason=M.LOCK_NOT_WRITABLE.format(
+            lock=lock.name, user=_user())), file=str(target),
+            hint="remove the lock file when no pinlib is writing the file")
+    return WriteError(M.FOLDER_NOT_WRITABLE.format(folder=shown, user=_user()),
+                      file=str(target), hint=M.WRITABLE_FOLDER_HINT)
 
 
 def _same_file(fd: int, path: Path) -> bool:
@@ -525,6 +558,9 @@ def atomic_write(path: str | os.PathLike, text: str) -> None:
     try:
         fd, tmp = tempfile.mkstemp(dir=folder, prefix=f".{path.name}.", suffix=".tmp")
     except OSError as exc:
+        refused = _not_writable(exc, folder, path)
+        if refused is not None:
+            raise refused from None
         raise WriteError(M.CANNOT_WRITE_IN_FOLDER.format(reason=exc.strerror),
                          file=str(path)) from None
     try:

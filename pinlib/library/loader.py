@@ -129,6 +129,7 @@ def record_errors(exc: RecordError, *, file=None, locate=None, cls=LibraryError,
     guessed = 0
     for issue in exc.issues:
         loc = issue.loc
+        related = issue.related
         moved = blame(issue) if blame is not None and issue.related else None
         if moved is not None and moved[0] != loc:
             # the value shown is the one written there, where the issue showed one
@@ -153,10 +154,29 @@ def record_errors(exc: RecordError, *, file=None, locate=None, cls=LibraryError,
             expected, hint = unknown_field_help(model, loc, format_name,
                                                 closest=guessed < MAX_CLOSEST_HINTS)
             guessed += 1
+        if hint is None and related and origin_file and locate:
+            hint = _set_elsewhere(loc, where, related, origin_file, locate)
         value = issue.value if not isinstance(issue.value, dict) else None
         out.append(cls(issue.problem, file=where, line=line, field=dotted, value=value,
                        expected=expected, hint=hint))
     return out
+
+
+def _set_elsewhere(loc, where, related, origin_file, locate) -> str | None:
+    """For a problem of several fields named at ``loc`` in file ``where``: where the
+    others were set when another file (a class the part extends) set them, as a hint
+    (``supply.max is set in i2c-peripheral.toml:5``); None when every one is here."""
+    import os
+
+    bits = []
+    for r in related:
+        other = origin_file(r)
+        if r == loc or other is None or other == where:
+            continue
+        line = locate(other, r)
+        bits.append(f"{dotted_path(r)} in {os.path.basename(other)}"
+                    + (f":{line}" if line else ""))
+    return M.SET_ELSEWHERE.format(places=", ".join(bits)) if bits else None
 
 
 def _within(dotted: str, loc: tuple, field: str | None) -> str | None:

@@ -33,10 +33,10 @@ from pinlib.core.errors import InputError, LibraryError, PinlibError, WriteError
 from pinlib.core.tomlfile import BOM, atomic_write, file_lock, line_index, line_of, tomllib
 from pinlib.library import loader
 from pinlib.library.fields import resolve_path
-from pinlib.library.schema import FORMAT
+from pinlib.library.schema import FORMAT, title_problem
 from pinlib.library.sources import NEEDS_SOURCE
 
-__all__ = ["RECORD_BASES", "new_part", "record_value"]
+__all__ = ["RECORD_BASES", "field_example", "new_part", "record_value", "resolve_field"]
 
 #: The bases a recorded value may carry ("generic" is for the built-in classes,
 #: "derived" is set by pinlib itself).
@@ -93,6 +93,20 @@ def _check_id(new_id: object) -> str:
     return new_id
 
 
+def check_title(title: str | None, field: str = "title") -> None:
+    """Refuse a title that is blank or more than one line, naming ``field`` (``title``,
+    or the command's ``--title``); None (the class's title) passes.
+
+    Raises
+    ------
+    InputError
+        With the problem of :func:`pinlib.library.schema.title_problem`.
+    """
+    problem = None if title is None else title_problem(title)
+    if problem is not None:
+        raise InputError(problem, field=field, value=title, expected=M.TITLE_EXPECTED)
+
+
 def one_line(text: str) -> str:
     """A source as one line: a line break or tab pasted with it (a caption copied out
     of a PDF) and any run of white space become one space, the ends stripped."""
@@ -142,7 +156,7 @@ def new_part(library: loader.Library, new_id: str, from_class: str,
     into_folder : path
         The team library folder to write ``<new_id>.toml`` into (created if missing).
     title : str, optional
-        The new part's title; the class's title when omitted.
+        The new part's title, one line (not blank); the class's title when omitted.
     basis, source : str
         The part's provenance: how its own values were obtained and from what.  Without
         a source none is written (never an empty one): a comment asks for it, and
@@ -158,10 +172,13 @@ def new_part(library: loader.Library, new_id: str, from_class: str,
     LibraryError
         An id that exists or is malformed, an unknown class (with the closest ids), or
         a folder inside the built-in library.
+    InputError
+        A title that is blank or holds a line break.
     WriteError
         When the folder or file cannot be written.
     """
     _check_id(new_id)
+    check_title(title)
     if new_id in library.files:
         raise LibraryError(M.PART_ID_EXISTS, field="id", value=new_id,
                            file=str(library.files[new_id].path),
@@ -178,7 +195,8 @@ def new_part(library: loader.Library, new_id: str, from_class: str,
         *_comment(title),
         *_comment(f"A team part that extends '{from_class}' and inherits all of its values."),
         "# Record this part's own values with their sources, e.g.",
-        *_command_comment(["pinlib parts record", new_id, 'PIN.FIELD "VALUE"',
+        *_command_comment(["pinlib parts record", new_id,
+                           f'{field_example(parent)} "VALUE"',
                            '--source "document, revision, table"']),
         f"format = {_toml_string(FORMAT)}",
         f"id = {_toml_string(new_id)}",
@@ -189,6 +207,31 @@ def new_part(library: loader.Library, new_id: str, from_class: str,
         "",
     ])
     return write_new_part(library, new_id, target, text)
+
+
+def field_example(part) -> str:
+    """The FIELD a ``pinlib parts record`` of a part extending ``part`` would name, as its
+    next step says it: ``line.capacitance`` for a cable class (it has no pins),
+    ``sides.a.PIN.FIELD`` for a bridging part, ``timing.FIELD`` for a part with no pins,
+    else ``PIN.FIELD``.
+
+    Parameters
+    ----------
+    part : Part
+        The class the new part extends.
+
+    Returns
+    -------
+    str
+        The field, with placeholders in capitals.
+    """
+    if part.line is not None or part.category == "cable":
+        return "line.capacitance"
+    if part.sides:
+        return f"sides.{sorted(part.sides)[0]}.PIN.FIELD"
+    if not part.pins:
+        return "timing.FIELD"
+    return "PIN.FIELD"
 
 
 def _provenance_lines(basis: str, source: str, today: _dt.date) -> list[str]:
@@ -304,7 +347,7 @@ def _refusal(err: PinlibError, path: Path, field: str | None, old_text: str | No
                             expected=err.expected,
                             hint=f"{field} was not written: correct this first, then "
                                  "record again")
-    line = None if old_text is None else line_of(line_index(old_text), tuple(field.split(".")))
+    line = None if old_text is None else _line_near(old_text, field)
     if _within(err.field, field):
         # the value, or a part of it the command wrote (its --typ: "pins.sda.c_in.typ")
         return LibraryError(M.VALUE_REFUSED.format(problem=err.problem), file=str(path), line=line,
@@ -472,7 +515,7 @@ def record_value(library: loader.Library, part_id: str, field: str, value_text: 
                            field="id", value=part_id,
                            hint=f"make a team part first: pinlib parts new {part_id}-v2 "
                                 f"--from {part_id} --into FOLDER")
-    keys, _kind = resolve_path(field)
+    keys, _kind = resolve_field(library, part_id, field)
     dotted = ".".join(keys)
     if not isinstance(value_text, str) or not value_text.strip():
         raise InputError(M.VALUE_NEEDED, field=dotted, value=value_text,
@@ -503,7 +546,7 @@ def record_value(library: loader.Library, part_id: str, field: str, value_text: 
         if old_data.get("id") != part_id or old_data.get("format") != FORMAT:
             raise LibraryError(M.FILE_NO_LONGER_HOLDS_PART, file=str(path),
                                field="id", value=old_data.get("id"), expected=part_id)
-        _check_pin_exists(library, part_id, pf, old_data, keys)
+        _check_pin_exists(library, part_id, pf, old_data, keys, old_text)
         before = doc.as_string()
         _set_path(doc, keys, item)
         expected = _expected_data(old_data, keys, _plain(item))
@@ -526,18 +569,100 @@ def record_value(library: loader.Library, part_id: str, field: str, value_text: 
     return path
 
 
-def _check_pin_exists(library, part_id, pf, data, keys) -> None:
-    """A pin must exist (here or in a parent) before a value is recorded on it."""
-    if "pins" not in keys:
+def resolve_field(library: loader.Library, part_id: str, field: str):
+    """The key path and kind of ``field`` (:func:`pinlib.library.fields.resolve_path`);
+    a path that names no value is refused at the part's file, and at the line of the
+    table the field would go in where the file has it (``sda.c_inn`` at ``[pins.sda]``).
+
+    Parameters
+    ----------
+    library : Library
+        The merged library holding the part.
+    part_id : str
+        The part the value is for.
+    field : str
+        ``PIN.FIELD``, ``timing.FIELD``, ``supply.min``...
+
+    Returns
+    -------
+    tuple
+        (keys, :class:`~pinlib.library.fields.ValueKind`).
+
+    Raises
+    ------
+    LibraryError
+        When the path does not end at a field that takes a value.
+    """
+    try:
+        return resolve_path(field)
+    except LibraryError as err:
+        pf = library.files.get(part_id)
+        if pf is None:
+            raise
+        raise _at_part(err, pf.path, pf.text, err.field) from None
+
+
+def _at_part(err: LibraryError, path: Path, text: str, field: str | None) -> LibraryError:
+    """``err`` located at the part's file and the line of ``field`` there, else of the
+    nearest table that holds it, else of the first table beside it (``pins.sdx`` at
+    ``[pins.sda]``); no line when the file has none of them."""
+    return err.located(file=str(path), line=_line_near(text, field))
+
+
+def _line_near(text: str, field: str | None) -> int | None:
+    """The line of ``field`` (dotted) in ``text``, else of the nearest table that holds
+    it, else of the first table beside it; None when the file has none of them."""
+    loc = tuple(field.split(".")) if isinstance(field, str) and field else ()
+    index = line_index(text)
+    line = line_of(index, loc) if loc else None
+    while line is None and loc:
+        # no table of its own: the first of its siblings ("pins.sdx" at [pins.sda])
+        loc = loc[:-1]
+        lines = [n for k, n in index.items() if loc and k[:len(loc)] == loc]
+        line = min(lines) if lines else None
+    return line
+
+
+def _check_pin_exists(library, part_id, pf, data, keys, text: str = "") -> None:
+    """A side must exist (here or in a parent) before a value is recorded on it, and a pin
+    before a value is recorded on the pin; a refusal names the file (and the line of
+    the table the value would go in)."""
+    if keys[0] != "sides" and "pins" not in keys:
         return
-    at = keys.index("pins")
-    pin = keys[at + 1]
     files = dict(library.files)
     files[part_id] = loader.PartFile(pf.path, data, "", False)
     try:
         merged, _, _ = loader._merged_raw(part_id, files, [])
     except LibraryError:
         return  # the full validation reports it
+    try:
+        if keys[0] == "sides":
+            _check_side(merged, keys)
+        if "pins" in keys:
+            _check_pin(merged, keys)
+    except LibraryError as err:
+        raise _at_part(err, pf.path, text, err.field) from None
+
+
+def _check_side(merged: dict, keys: tuple[str, ...]) -> None:
+    sides = merged.get("sides") if isinstance(merged.get("sides"), dict) else {}
+    side = keys[1]
+    if side in sides:
+        return
+    if not sides:
+        pins = merged.get("pins") if isinstance(merged.get("pins"), dict) else {}
+        raise LibraryError(M.NO_SIDES, field=f"sides.{side}", value=side,
+                           expected=M.NO_SIDES_EXPECTED.format(
+                               pins=", ".join(sorted(map(str, pins))) or "none"))
+    raise LibraryError(M.NO_SUCH_SIDE.format(side=side), field=f"sides.{side}", value=side,
+                       expected=M.ONE_OF_ITS_SIDES.format(sides=", ".join(sorted(sides))),
+                       hint=f"e.g. sides.{sorted(sides)[0]}." + ".".join(
+                           keys[3:] if keys[2:3] == ("pins",) else keys[2:]))
+
+
+def _check_pin(merged: dict, keys: tuple[str, ...]) -> None:
+    at = keys.index("pins")
+    pin = keys[at + 1]
     node = merged
     for key in keys[: at + 1]:
         node = node.get(key, {}) if isinstance(node, dict) else {}

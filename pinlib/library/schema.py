@@ -40,6 +40,7 @@ import datetime as _dt
 from typing import Annotated, Literal
 
 from pinlib.core import messages as M
+from pinlib.core.errors import LibraryError
 from pinlib.core.protocols import PIN_FUNCTIONS
 from pinlib.core.quantity import format_si
 from pinlib.core.records import (
@@ -96,7 +97,9 @@ def _q(unit, lo=None, hi=None, signed=False):
     return Annotated[Sourced, Convert(sourced_parser(unit, lo, hi, signed=signed))]
 
 
-# Plausible ranges: wide enough for any real pin, narrow enough to catch a lost prefix.
+# Allowed ranges (a value outside is refused; docs/formats/part.md): wide enough for any
+# real pin, narrow enough to catch a lost prefix.  The plausible ranges, which only
+# warn, are pinlib.library.plausible.RANGES.
 Capacitance = _q("F", 0.0, 100e-9)
 Current = _q("A", 0.0, 10.0)
 Voltage = _q("V", -50.0, 50.0, signed=True)
@@ -326,6 +329,34 @@ class Side(Record):
     low_offset: Voltage | None = None  # the low level this side drives (static offset), max
 
 
+#: What ends a line (``str.splitlines``): a title holding one of them is not one line.
+LINE_BREAKS = frozenset("\n\r\v\f\x1c\x1d\x1e\x85\u2028\u2029")
+
+
+def title_problem(title: object) -> str | None:
+    """Why ``title`` is no part title, or None: a title is one line of text, not blank
+    (an empty title listed the part with no name; a line break split its listing and
+    the comment a new part file opens with).
+
+    Parameters
+    ----------
+    title : object
+        The title as given (a file's ``title``, ``parts new --title``).
+
+    Returns
+    -------
+    str or None
+        The problem, a message of :mod:`pinlib.core.messages`.
+    """
+    if not isinstance(title, str):
+        return None  # the record's own type check names it
+    if not title.strip():
+        return M.TITLE_BLANK
+    if any(ch in LINE_BREAKS for ch in title):
+        return M.TITLE_NOT_ONE_LINE
+    return None
+
+
 class Part(Record):
     """A part class: the whole file, after ``extends`` has been merged in."""
 
@@ -343,6 +374,13 @@ class Part(Record):
     sides: dict[Literal["a", "b"], Side] = field(default_factory=dict)
     bridge: Bridge | None = None
     line: LinePerLength | None = None
+
+    @check("title")
+    def _title_one_line(cls, v, earlier):
+        problem = title_problem(v)
+        if problem is not None:
+            raise LibraryError(problem, value=v, expected=M.TITLE_EXPECTED)
+        return v
 
     @check("sides")
     def _both_sides(cls, v, earlier):

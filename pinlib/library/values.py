@@ -227,18 +227,21 @@ def sourced_parser(unit: str, lo: float | None = None, hi: float | None = None,
     """A record converter (:class:`pinlib.core.records.Convert`): plain value or provenance
     table -> :class:`Sourced`.
 
-    ``lo``/``hi`` are sane bounds in SI (a bare ``"4k7"`` for a capacitance must not
-    pass as 4.7 kF); values outside them are refused with the range in the message.
+    ``lo``/``hi`` are the field's allowed range in SI (a bare ``"4k7"`` for a
+    capacitance must not pass as 4.7 kF); values outside them are refused with the range
+    in the message, per-length ranges per metre as the format's table states them.
     """
 
     def check(x, field, text):
         # the value is quoted as written ("1e300 pF", not its SI form "1e288 F")
         if not signed and x < 0:
             raise UnitError(M.NEGATIVE_VALUE, field=field, value=str(text),
-                            expected=range_text(max(lo or 0.0, 0.0), hi, unit))
+                            expected=range_text(max(lo or 0.0, 0.0), hi, unit, per="m"))
         if (lo is not None and x < lo) or (hi is not None and x > hi):
+            # the range as the format's table states it (docs/formats/part.md): per
+            # metre for a cable's per-length values
             raise UnitError(M.OUTSIDE_RANGE, field=field, value=str(text),
-                            expected=range_text(lo, hi, unit))
+                            expected=range_text(lo, hi, unit, per="m"))
         return x
 
     def validate(raw, name=None):
@@ -271,7 +274,7 @@ def threshold_parser(lo: float = -50.0, hi: float = 50.0):
         th = parse_threshold(text, field=field)
         if not (-2.0 <= th.scale <= 2.0 and lo <= th.offset <= hi):
             raise UnitError(M.OUTSIDE_RANGE, field=field, value=text,
-                            expected=f"a scale of VDD within ±2 and an offset within {lo}..{hi} V")
+                            expected=M.LEVEL_RANGE.format(lo=f"{lo:g}", hi=f"{hi:g}"))
         return th
 
     return validate

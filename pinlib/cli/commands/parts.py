@@ -544,8 +544,9 @@ def _default_folder(args) -> Path:
 
 
 def _run_new(args) -> int:
-    from pinlib.library.record import new_part
+    from pinlib.library.record import check_title, field_example, new_part
 
+    check_title(args.title, "--title")
     folder = Path(args.into) if args.into else _default_folder(args)
     lib = _load(args)
     _refuse_unknown(lib, args.from_class, "--from", args)
@@ -560,7 +561,8 @@ def _run_new(args) -> int:
     if folder.resolve() not in known:
         print(fitted(f"note: {_rel(folder)} is not a library folder yet: pass --library "
                      f"{folder} or add it to PINLIB_LIBRARY", sys.stderr), file=sys.stderr)
-    print(fitted_command("next:", ["pinlib", "parts", "record", args.id, "PIN.FIELD",
+    print(fitted_command("next:", ["pinlib", "parts", "record", args.id,
+                                   field_example(lib.get(args.from_class)),
                                    '"VALUE"', '--source "..."']
                          + ([f"--library {folder}"] if folder.resolve() not in known else [])))
     return 0
@@ -569,12 +571,11 @@ def _run_new(args) -> int:
 # --- record ----------------------------------------------------------------------------
 
 def _run_record(args) -> int:
-    from pinlib.library.fields import resolve_path
-    from pinlib.library.record import one_line, record_value
+    from pinlib.library.record import one_line, record_value, resolve_field
 
     lib = _load(args)
     _refuse_unknown(lib, args.id, "ID", args)
-    keys, _ = resolve_path(args.field)
+    keys, _ = resolve_field(lib, args.id, args.field)
     was = _value_before(lib, args.id, ".".join(keys), typ_given=args.typ is not None)
     path = record_value(lib, args.id, args.field, args.value, args.source,
                         basis=args.basis, typ=args.typ)
