@@ -169,12 +169,13 @@ def test_record_warns_when_a_cable_s_three_values_come_to_disagree(team, capsys)
     assert "8 ns/m against the delay 5 ns/m (+60%)" in err
 
 
-def test_check_warns_about_the_parts_it_places(team, tmp_path, capsys):
-    (team / "odd.toml").write_text(TARGET.format(c_in="8 pF", v_il="-0.3 V"), encoding="utf-8")
+def _placing(tmp_path, team, part_id: str, title: str):
+    """A design of one 3.3 V I2C bus placing team part ``part_id`` beside mcu-3v3
+    (invented test design)."""
     design = tmp_path / "d.toml"
     design.write_text(f"""\
 format = "pinlib.design/1"
-title = "implausible part (invented)"
+title = "{title}"
 library = ["{team.as_posix()}"]
 
 [[bus]]
@@ -184,9 +185,15 @@ supply = "3.3 V"
 trace = {{ length = "5 cm", capacitance = "1 pF/cm" }}
 devices = [
   {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
-  {{ ref = "U2", part = "odd-target" }},
+  {{ ref = "U2", part = "{part_id}" }},
 ]
 """, encoding="utf-8")
+    return design
+
+
+def test_check_warns_about_the_parts_it_places(team, tmp_path, capsys):
+    (team / "odd.toml").write_text(TARGET.format(c_in="8 pF", v_il="-0.3 V"), encoding="utf-8")
+    design = _placing(tmp_path, team, "odd-target", "implausible part (invented)")
     main(["check", str(design)])
     err = capsys.readouterr().err
     assert "pinlib: warning: odd-target:" in err and "field 'pins.sda.v_il'" in err
@@ -196,22 +203,7 @@ def test_check_warnings_wrap_to_the_terminal_and_stay_whole_in_a_pipe(team, tmp_
                                                                       monkeypatch):
     # a warning about an implausible value ran to ~200 characters on a terminal
     (team / "odd.toml").write_text(TARGET.format(c_in="8 pF", v_il="-0.3 V"), encoding="utf-8")
-    design = tmp_path / "d.toml"
-    design.write_text(f"""\
-format = "pinlib.design/1"
-title = "implausible part (invented)"
-library = ["{team.as_posix()}"]
-
-[[bus]]
-id = "b"
-protocol = "i2c"
-supply = "3.3 V"
-trace = {{ length = "5 cm", capacitance = "1 pF/cm" }}
-devices = [
-  {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
-  {{ ref = "U2", part = "odd-target" }},
-]
-""", encoding="utf-8")
+    design = _placing(tmp_path, team, "odd-target", "implausible part (invented)")
     monkeypatch.delenv("COLUMNS", raising=False)
     main(["check", str(design)])
     piped = capsys.readouterr().err.splitlines()
@@ -297,22 +289,7 @@ provenance = { basis = "estimate", source = "invented test part" }
 [pins.sda]
 c_in = { value = "6 pF", basis = "datasheet" }
 """, encoding="utf-8")
-    design = tmp_path / "d.toml"
-    design.write_text(f"""\
-format = "pinlib.design/1"
-title = "unsourced part (invented)"
-library = ["{team.as_posix()}"]
-
-[[bus]]
-id = "b"
-protocol = "i2c"
-supply = "3.3 V"
-trace = {{ length = "5 cm", capacitance = "1 pF/cm" }}
-devices = [
-  {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
-  {{ ref = "U2", part = "nosrc-target" }},
-]
-""", encoding="utf-8")
+    design = _placing(tmp_path, team, "nosrc-target", "unsourced part (invented)")
     main(["check", str(design)])
     err = capsys.readouterr().err
     assert "pinlib: warning: nosrc-target:" in err and "field 'pins.sda.c_in'" in err
