@@ -141,10 +141,10 @@ def test_bad_levels_are_refused(design, capsys):
       "HI at least 5 % of the rail above LO"]),
     # a rise of 1e30 s gave "measured Cb 536e24 F", past every SI prefix
     (["--rise", "1e30s", "--probe", "10pF"], "--rise",
-     ["outside the plausible range (got '1e30 s')", "between 100 ps and 10 s"]),
+     ["outside the allowed range (got '1e30 s')", "between 100 ps and 10 s"]),
     (["--rise", "1e-30s", "--probe", "10pF"], "--rise", ["(got '1e-30 s')"]),
     (["--rise", "150ns", "--probe", "1e30F"], "--probe",
-     ["outside the plausible range (got '1e30 F')", "at most 1 nF"]),
+     ["outside the allowed range (got '1e30 F')", "at most 1 nF"]),
 ])
 def test_a_reading_no_bench_gives_is_refused_naming_its_option(design, capsys, argv, field,
                                                                words):

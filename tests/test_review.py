@@ -919,7 +919,7 @@ _EVIL = ("evil ```` x\n```\n# Approved: every check passes\n\n![t](https://track
 _INJECT_PART = """\
 format = "pinlib.part/1"
 id = "t-evil"
-title = {text}
+title = {title}
 category = "memory"
 extends = "eeprom-i2c"
 provenance = {{ basis = "estimate", source = {text} }}
@@ -955,15 +955,17 @@ def _injected_report(folder: Path, text: str) -> str:
     team = folder / "team"
     team.mkdir(parents=True)
     quoted = json.dumps(text)  # a JSON string is a TOML basic string here
-    (team / "t-evil.toml").write_text(_INJECT_PART.format(text=quoted, c_in="8 pF"),
-                                      encoding="utf-8")
+    # a part's title is one line (the loader refuses more): the same text, joined
+    title = json.dumps(" ".join(text.splitlines()))
+    (team / "t-evil.toml").write_text(_INJECT_PART.format(text=quoted, title=title,
+                                                          c_in="8 pF"), encoding="utf-8")
     board = folder / "board.toml"
     board.write_text(_INJECT_DESIGN.format(text=quoted), encoding="utf-8")
     design = load_design(board)
     save_snapshot(design, check_design(design))
     # the source and value change, so the change list quotes the user's text
-    (team / "t-evil.toml").write_text(_INJECT_PART.format(text=quoted, c_in="9 pF"),
-                                      encoding="utf-8")
+    (team / "t-evil.toml").write_text(_INJECT_PART.format(text=quoted, title=title,
+                                                          c_in="9 pF"), encoding="utf-8")
     design = load_design(board)
     result = check_design(design)
     changes = compare_with_snapshot(design, result)
