@@ -1668,6 +1668,16 @@ def _(env):
     return env.capsys.readouterr().err
 
 
+@case("OVERRIDE_HIDES_BUILTIN", M.OVERRIDE_HIDES_BUILTIN.format(id="eeprom-i2c"))
+def _(env):
+    # a team file of the built-in id that extends "itself" (an invented override): it
+    # does not load, and the built-in class is out of the listing with it
+    env.write("team/eeprom-i2c.toml", PART.format(id="eeprom-i2c").replace(
+        'category = "sensor"', 'category = "sensor"\nextends = "eeprom-i2c"'))
+    assert main(["parts", "list", "--library", str(env.tmp / "team")]) == 0
+    return " ".join(env.capsys.readouterr().err.split())
+
+
 @case("SWAP_REFUSED", M.SWAP_REFUSED.format(ref="U2", new="nor-flash-spi", old="eeprom-i2c"))
 def _(env):
     path = env.write("design.toml", HEAD + I2C_BUS)

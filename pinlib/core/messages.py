@@ -334,6 +334,8 @@ PART_DOES_NOT_LOAD = "the part does not load"
 LIBRARY_HAS_PROBLEMS = ("{n} problem{s} in the library (run 'pinlib parts check'); parts "
                         "with problems are left out")
 FIRST_PROBLEM = "the first: {message}"
+OVERRIDE_HIDES_BUILTIN = ("the built-in {id} is out too: a team file that does not load "
+                          "overrides it, and every part that extends it is out with it")
 INTERRUPTED = "interrupted (Ctrl-C): stopped"
 SUBSTITUTION_FORM = "a substitution is REF=PART"
 SUBSTITUTED_TWICE = "one reference substituted twice"

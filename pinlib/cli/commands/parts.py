@@ -206,7 +206,13 @@ def _load(args, extra=()):
 
 def _warn_problems(lib) -> None:
     if lib.problems:
-        _warn("pinlib: warning: " + counted(M.LIBRARY_HAS_PROBLEMS, len(lib.problems)))
+        text = counted(M.LIBRARY_HAS_PROBLEMS, len(lib.problems))
+        # a team file that overrides a built-in id and does not load takes the built-in
+        # out with it, and every part that extends that id: say which
+        for pid in lib.overrides:
+            if pid not in lib.parts:
+                text += "; " + M.OVERRIDE_HIDES_BUILTIN.format(id=pid)
+        _warn("pinlib: warning: " + text)
 
 
 def _choice(value, choices, field):
