@@ -136,3 +136,35 @@ def test_wrapping_columns_share_the_room_and_are_dropped_last():
     # for the title)
     lines, _ = fit_table(head, rows, 90, least={2: 6, 3: 12}, drop=[2, 1], rule=True)
     assert [len(r) for r in lines[1].split()] == [2, 10, 27, 45]
+
+
+# --------------------------------------------------------------------- wide characters
+
+_CJK_TITLE = "串行EEPROM存储器，I2C接口，1.7至5.5伏，带写保护引脚和硬件地址选择功能的大容量型号"
+
+
+def test_wide_characters_count_the_two_columns_a_terminal_gives_them():
+    from pinlib.core.wrapping import columns, wrap
+
+    # published: Unicode Standard Annex #11 (East Asian Width): ideographs and
+    # full-width forms are wide (two columns), ASCII narrow; a combining mark takes none
+    assert columns("EEPROM") == 6 and columns("串行") == 4 and columns("，") == 2
+    assert columns("e\u0301") == 1
+    # an invented title with no spaces: every line within 80 columns, nothing lost
+    lines = wrap(f"pinlib: warning: t-cjk: {_CJK_TITLE} and 4.7 kΩ beside it", 80)
+    assert all(columns(ln) <= 80 for ln in lines) and len(lines) == 2
+    assert "".join(ln.strip() for ln in lines).replace(" ", "") == (
+        f"pinlib: warning: t-cjk: {_CJK_TITLE} and 4.7 kΩ beside it").replace(" ", "")
+    assert any("4.7 kΩ" in ln for ln in lines)  # a number stays with its unit
+
+
+def test_a_table_with_wide_text_aligns_by_columns_and_fits():
+    from pinlib.core.wrapping import columns
+
+    lines, dropped = fit_table(["id", "title"], [["t-cjk", _CJK_TITLE], ["t-plain", "plain"]],
+                               width=40, least={1: 10})
+    assert not dropped and all(columns(ln) <= 40 for ln in lines)
+    # the second column starts at one place on every line (its cells padded by columns)
+    starts = {columns(ln[:ln.rindex(cell)]) for ln in lines for cell in ("串", "plain")
+              if cell in ln}
+    assert starts == {9}  # derived: "t-plain" (7) and the two-space gap

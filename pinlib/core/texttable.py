@@ -24,7 +24,7 @@ from __future__ import annotations
 import re
 import textwrap
 
-from pinlib.core.wrapping import NBSP, glue
+from pinlib.core.wrapping import NBSP, columns, glue, has_wide, ljust, wrap_wide
 
 __all__ = ["fit_table"]
 
@@ -66,7 +66,7 @@ def fit_table(header: list[str], rows: list[list[str]], width: int | None = None
     """
     cols = list(range(len(header)))
     cells = [list(map(str, header))] + [list(map(str, r)) for r in rows]
-    natural = [max(len(c[i]) for c in cells) for i in cols]
+    natural = [max(columns(c[i]) for c in cells) for i in cols]
 
     def total(which, widths):
         return sum(widths[i] for i in which) + len(_GAP) * (len(which) - 1)
@@ -76,8 +76,8 @@ def fit_table(header: list[str], rows: list[list[str]], width: int | None = None
     if (names is not None and width is not None and total(cols, natural) > width
             and natural[names] > width // 2):
         # a name longer than half the width goes on a line of its own
-        natural[names] = max([len(c[names]) for c in cells if len(c[names]) <= width // 2]
-                             or [1])
+        natural[names] = max([columns(c[names]) for c in cells
+                              if columns(c[names]) <= width // 2] or [1])
     dropped = []
     least = least or {}
     # the widths columns are dropped by: text that wraps counted as narrow as it may go
@@ -130,17 +130,17 @@ def fit_table(header: list[str], rows: list[list[str]], width: int | None = None
     out = []
     for k, row in enumerate(cells):
         wrapped = [[row[i]] if i == names else _wrap_cell(row[i], widths[i]) for i in cols]
-        if names in cols and len(row[names]) > widths[names]:
+        if names in cols and columns(row[names]) > widths[names]:
             at = cols.index(names)
             # the name whole after the first line of the cells before it; the rest of
             # the row under it
-            out.append(_GAP.join([w[0].ljust(widths[i]) for w, i in
+            out.append(_GAP.join([ljust(w[0], widths[i]) for w, i in
                                   zip(wrapped[:at], cols[:at], strict=True)] + [row[names]]))
             wrapped = [w[1:] for w in wrapped[:at]] + [[""]] + wrapped[at + 1:]
             if not any(any(w) for w in wrapped):
                 wrapped = [[] for _ in cols]  # nothing under it: no blank line
         for j in range(max(len(w) for w in wrapped)):
-            out.append(_GAP.join((w[j] if j < len(w) else "").ljust(widths[i])
+            out.append(_GAP.join(ljust(w[j] if j < len(w) else "", widths[i])
                                  for w, i in zip(wrapped, cols, strict=True)).rstrip())
         if k == 0 and rule:
             out.append(_GAP.join("-" * widths[i] for i in cols))
@@ -152,7 +152,10 @@ def _wrap_cell(text: str, width: int) -> list[str]:
     id, 'i2c-sda'); a word longer than the cell is broken after its hyphens first
     ("general-" / "purpose", where it read "gen" / "eral-purpose"), then where the width
     falls.  A number stays on the line of its unit where the two fit the cell
-    (:func:`pinlib.core.wrapping.glue`)."""
+    (:func:`pinlib.core.wrapping.glue`).  Text with wide characters is measured in the
+    columns a terminal gives it (:func:`pinlib.core.wrapping.wrap_wide`)."""
+    if has_wide(text):
+        return [ln.replace(NBSP, " ") for ln in wrap_wide(glue(text.strip()), width)] or [""]
     words = [w if len(w) <= width else w.replace(NBSP, " ")
              for w in _SPACES.split(glue(text.strip())) if w]
     text = " ".join(words)

@@ -10,8 +10,9 @@ from __future__ import annotations
 
 import re
 import textwrap
+import unicodedata
 
-__all__ = ["wrap", "glue", "NBSP"]
+__all__ = ["wrap", "glue", "NBSP", "columns", "ljust", "has_wide", "wrap_wide"]
 
 #: A number stays on one line with its unit, its relation (≤, ≥, <, >) and the word
 #: before it ("tr 242 ns", "margin < -999 %").
@@ -19,6 +20,75 @@ _GLUE = re.compile(r"(?<=\d) (?=[^\W\d_]|%|Ω|µ|°)|(?<=[≤≥<>]) (?=[+−-]?
                    r"|(?<=[−+]) (?=\d)|(?<=[^\W\d_]) (?=[+−-]?\d|[≤≥<>] [+−-]?\d)")
 #: The no-break space that holds two words together while wrapping (a space again after).
 NBSP = "\u00a0"
+
+
+def _wide(ch: str) -> bool:
+    """Whether a terminal gives ``ch`` two columns (East Asian wide or full-width)."""
+    return unicodedata.east_asian_width(ch) in "WF"
+
+
+def has_wide(text: str) -> bool:
+    """Whether ``text`` holds a character a terminal gives two columns."""
+    return not text.isascii() and any(_wide(ch) for ch in text)
+
+
+def columns(text: str) -> int:
+    """The columns ``text`` takes on a terminal: two for a wide character (CJK, most
+    emoji), none for a combining mark, one for the others.
+
+    Examples
+    --------
+    >>> columns("EEPROM"), columns("串行EEPROM")
+    (6, 10)
+    """
+    if text.isascii():
+        return len(text)
+    return sum(0 if unicodedata.combining(ch) else 2 if _wide(ch) else 1 for ch in text)
+
+
+def ljust(text: str, width: int) -> str:
+    """``text`` padded with spaces to ``width`` columns (:func:`columns`)."""
+    return text + " " * max(0, width - columns(text))
+
+
+def wrap_wide(text: str, width: int, first: str = "", rest: str = "") -> list[str]:
+    """Text that holds wide characters (:func:`has_wide`) in lines of at most ``width``
+    columns, the first begun with ``first`` and the others with ``rest``: broken at a
+    space, or between two characters where either is wide (Chinese and Japanese text
+    has no spaces); a run of narrow characters longer than a line is cut where the
+    line ends.  :mod:`textwrap` counts characters, one column each."""
+    pieces = []  # (text, a space before it)
+    for word in text.split(" "):
+        for k, run in enumerate(_runs(word)):
+            pieces.append((run, k == 0))
+    lines, line, start = [], first, True
+    used = columns(first)
+    for piece, spaced in pieces:
+        gap = 1 if spaced and not start else 0
+        if not start and used + gap + columns(piece) > width:
+            lines.append(line.rstrip())
+            line, used, start, gap = rest, columns(rest), True, 0
+        while start and columns(piece) > width - used > 0 and len(piece) > 1:
+            cut = width - used  # a narrow run (one column a character) longer than a line
+            lines.append(line + piece[:cut])
+            piece, line, used = piece[cut:], rest, columns(rest)
+        line += " " * gap + piece
+        used += gap + columns(piece)
+        start = False
+    lines.append(line.rstrip())
+    return lines
+
+
+def _runs(word: str) -> list[str]:
+    """A word in the pieces a line may break between: each wide character alone, the
+    narrow ones between them together."""
+    out: list[str] = []
+    for ch in word:
+        if _wide(ch) or not out or _wide(out[-1][-1]):
+            out.append(ch)
+        else:
+            out[-1] += ch
+    return out
 
 
 def glue(text: str) -> str:
@@ -38,6 +108,9 @@ def wrap(text: str, cols: int, indent: str = "", subsequent: str = "    ", *,
     the lines of a paragraph with a space: a word cut in two would read as two)."""
     glued = glue(text)
     width = max(10, cols)
+    if has_wide(glued):  # by the columns a terminal gives each character
+        lines = wrap_wide(glued, width, indent, indent + subsequent)
+        return [ln.replace(NBSP, " ") for ln in lines] or [indent.rstrip()]
     lines = textwrap.wrap(glued, width, initial_indent=indent,
                           subsequent_indent=indent + subsequent, break_on_hyphens=False,
                           break_long_words=break_long)

@@ -15,7 +15,7 @@ import textwrap
 from pinlib.core import messages as M
 from pinlib.core.labels import check_label, humanize, note_label
 from pinlib.core.quantity import format_si
-from pinlib.core.wrapping import NBSP, glue
+from pinlib.core.wrapping import NBSP, columns, glue, has_wide, ljust, wrap_wide
 from pinlib.model.result import CAUTION, BusResult, Group, margin_text
 from pinlib.present.terminal import status_word, wrap
 from pinlib.present.values import counts, figure_cells, format_value, with_fix
@@ -32,7 +32,7 @@ def table(rows: list[list[str]], indent: str, cols: int, flex: int,
     ``heads``: a line to print, as it is, before row ``i`` (a place's name), the columns
     aligned over every row."""
     n = len(rows[0])
-    widths = [max(len(r[i]) for r in rows) for i in range(n)]
+    widths = [max(columns(r[i]) for r in rows) for i in range(n)]
     others = sum(w for i, w in enumerate(widths) if i != flex) + 2 * (n - 1) + len(indent)
     widths[flex] = max(_MIN_FLEX, min(widths[flex], cols - others))
     out = []
@@ -40,12 +40,14 @@ def table(rows: list[list[str]], indent: str, cols: int, flex: int,
         if heads and i in heads:
             out.append(heads[i])
         # a number stays on the line of its unit, as in every text pinlib wraps
-        pieces = [p.replace(NBSP, " ") for p in textwrap.wrap(
-            glue(r[flex]), widths[flex], break_on_hyphens=False)] or [""]
+        text = glue(r[flex])
+        pieces = [p.replace(NBSP, " ") for p in (
+            wrap_wide(text, widths[flex]) if has_wide(text)
+            else textwrap.wrap(text, widths[flex], break_on_hyphens=False))] or [""]
         for k, piece in enumerate(pieces):
             cells = [(piece if i == flex else (r[i] if k == 0 else ""))
                      for i in range(n)]
-            out.append((indent + "  ".join(c.ljust(w) for c, w in
+            out.append((indent + "  ".join(ljust(c, w) for c, w in
                                            zip(cells, widths, strict=True))).rstrip())
     return out
 
