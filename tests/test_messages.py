@@ -681,6 +681,17 @@ def _(env):
     return rank_candidates(load_design(demo), "U4").format_text(width=None)
 
 
+@case("SPI_CONTROLLER_CANNOT_DRIVE", M.SPI_CONTROLLER_CANNOT_DRIVE.format(signal="SCLK"))
+def _(env):
+    # a memory marked as the controller: its SCLK pin only reads the clock
+    body = SPI_BUS.replace('part = "mcu-3v3", role = "controller"',
+                           'part = "nor-flash-spi", role = "controller"').replace(
+        '{ ref = "U7", part = "nor-flash-spi" }', '{ ref = "U7", part = "adc-spi" }')
+    err = _fails(lambda e: e.design(body), env)
+    assert err.field == "bus[0].devices[0].role" and "no device on this bus" in err.hint
+    return err
+
+
 @case("THRESHOLDS_INVERTED_AT_RAIL", M.THRESHOLDS_INVERTED_AT_RAIL.format(
     pin="sda", v_il="2.5 V", v_ih="2.31 V", rail="3.3 V"))
 def _(env):

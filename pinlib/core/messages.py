@@ -264,6 +264,8 @@ SUPPLY_TOO_LOW = "implausibly low for a logic rail"
 BUS_NEEDS_CONTROLLER = "a bus needs a controller"
 SPI_ONE_CONTROLLER = "a second controller on an SPI bus"
 CONTROLLER_CANNOT_DRIVE = "a controller must pull {signal} low, and this part cannot"
+SPI_CONTROLLER_CANNOT_DRIVE = ("an SPI controller drives {signal} as a push-pull output, "
+                               "and this part's pin cannot")
 SEGMENT_NOT_JOINED = ("no bridging part joins this segment to the controller's: "
                       "nothing clocks its lines")
 BRIDGE_NEEDS_SIDE = "a bridging part names its side in each segment"

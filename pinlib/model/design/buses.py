@@ -265,12 +265,44 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
                 if d.part.pin_for(fn, d.side) is None and not d.is_bridge:
                     raise err(M.PART_LACKS_PIN.format(function=fn), d.loc + ("part",),
                               value=d.part_id)
+        _spi_controller_drives(devices, lines, err)
         if "sclk" not in lines:
             raise err(M.SPI_NEEDS_SCLK, bloc + ("lines",),
                       expected='lines.sclk = { length = "8 cm", geometry = "..." }')
     return Bus(rb.id, rb.protocol, None, rb.clock, rb.supply, rb.supply_tolerance or 0.0, (),
                devices, lines, rb.spi_mode or 0, rb.title, rb.capacitance_tolerance or 0.0,
                rb.length_tolerance or 0.0, bloc)
+
+
+def _spi_controller_drives(devices, lines: dict, err) -> None:
+    """The SPI controller drives SCLK, COPI and CS: a part whose pin of one of them (a
+    routed line, or SCLK) is not a push-pull output cannot be it (a memory's SCLK only
+    reads the clock).  Refused at its ``role``, naming the devices that could drive the
+    line, or saying none can, as an open-drain bus refuses a controller that cannot
+    pull SCL low."""
+    ctrl = next(d for d in devices if d.is_controller)
+    if ctrl.is_bridge:
+        return  # a buffer's side passes the controller's edges on (the engine's model)
+    for sig in ("sclk", "copi", "cs"):
+        if sig != "sclk" and sig not in lines:
+            continue
+        fn = SIGNAL_FUNCTION[sig]
+        got = ctrl.part.pin_for(fn, ctrl.side)
+        if got is None or got[1].drive == "push-pull":
+            continue  # a missing pin is PART_LACKS_PIN's
+        name, pin = got
+        able = sorted(d.ref for d in devices if d.ref != ctrl.ref and not d.is_bridge
+                      and (p := d.part.pin_for(fn, d.side)) is not None
+                      and p[1].drive == "push-pull")
+        whom = (f"{and_list(able)} can drive {sig.upper()}" if able else
+                f"no device on this bus drives {sig.upper()}: add the part that controls "
+                "the bus (a microcontroller, a host adapter)")
+        raise err(M.SPI_CONTROLLER_CANNOT_DRIVE.format(signal=sig.upper()),
+                  ctrl.loc + ("role",), value=ctrl.role,
+                  expected=f'role = "peripheral" here, and role = "controller" on the '
+                           f"device whose {sig.upper()} pin is a push-pull output",
+                  hint=f"{ctrl.part_id} pin '{name}' ({fn}) has drive = \"{pin.drive}\"; "
+                       f"{whom}")
 
 
 def _one_spi_controller(devices, err) -> None:
