@@ -49,6 +49,7 @@ from pinlib.engines.readout import explained
 from pinlib.model.design import Line
 from pinlib.model.result import Check, LineResult, check_max, rule_of_thumb
 from pinlib.physics import driver as drv
+from pinlib.physics import lines as tl_models
 from pinlib.physics import waveform as wf
 
 
@@ -261,10 +262,27 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
         return a
     _electrical_length(a, notes)
     _loss_note(a, notes)
+    _trace_models_note(a, notes)
     _solve_cases(a, pullup, clock, clock_line, warn_margin, notes)
     _add_checks(a, res, clock, clock_line, warn_margin, pullup)
     _add_figures(a, res)
     return a
+
+
+def _trace_models_note(a: LineAnalysis, notes: list) -> None:
+    """The model behind each board geometry of the line, with its Z0 (the open-drain
+    engine's trace note says the same of a bus's traces): only text, so it is left out
+    where no text is read."""
+    if not explained() or len(a.stretches) != len(a.line.sections):
+        return
+    seen: dict[str, str] = {}
+    for sec, st in zip(a.line.sections, a.stretches, strict=True):
+        g = sec.geometry
+        if g is not None and g.name not in seen:
+            seen[g.name] = (f"'{g.name}' ({g.kind}, Z0 {_fmt(st.z0, 'Ω')}; "
+                            f"{tl_models.method_label(g.kind, g.method)})")
+    if seen:
+        notes.append("trace: " + "; ".join(seen.values()))
 
 
 def _loss_note(a: LineAnalysis, notes: list) -> None:
