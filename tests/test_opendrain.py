@@ -357,6 +357,20 @@ def test_rise_time_minimum_in_fast_mode_only(tmp_path):
         assert not [c for c in other.checks if c.id == "rise-time-min"], mode
 
 
+def test_the_fastest_rise_takes_cb_at_the_low_end_of_its_tolerance(tmp_path):
+    # the plain check had taken Cb at the top of its tolerance, and passed a rise the
+    # corners failed: with 8 pF of board capacitance at ±80 % (invented), the fastest
+    # rise has 1.6 pF of it, not 14.4 pF
+    res = bus_result(tmp_path, one_bus(pullup="1.2 kΩ", ptol="1 %", extra="8 pF",
+                                       more='capacitance_tolerance = "80 %"'))
+    cb_max = fig(res, "bus_capacitance")
+    pins = cb_max - 8e-12 * 1.8  # derived: the extra capacitance at +80 %
+    chk = next(c for c in res.checks if c.id == "rise-time-min" and c.subject == "SDA")
+    # derived from UM10204 rev. 6 §7.1: 0.8473·Rp(−1 %)·(pins + 8 pF·(1 − 80 %))
+    assert chk.value == pytest.approx(RISE_30_70 * 1188.0 * (pins + 1.6e-12), rel=1e-9)
+    assert "with its tolerances at their low ends" in chk.message
+
+
 def test_auto_keeps_the_rise_over_its_minimum(tmp_path):
     """On a small 1.8 V Fast-mode bus the sink allows 1 kΩ, whose rise (16 ns) is under
     the 20 ns minimum: ``auto`` takes the smallest value that keeps it, as it keeps the
@@ -1141,8 +1155,9 @@ def _line_numbers(chk, seg_in):
         # derived from UM10204 rev. 6 §7.1 eq. 1: tr = factor · Rp · Cb, Rp at +tol
         return [ln.rise_factor * r_eff * (1 + tol) * ln.cb]
     if chk.id == "rise-time-min":
-        # derived from the same formula at the fast end: Rp at −tol
-        return [ln.rise_factor * r_eff * (1 - tol) * ln.cb]
+        # derived from the same formula at the fast end: Rp at −tol, Cb at the low end
+        # of its tolerances
+        return [ln.rise_factor * r_eff * (1 - tol) * ln.cb_low]
     if chk.id == "v-oh":
         # derived: the rail (either corner) less the leakage's drop across Rp at +tol
         return [float(v) - ln.leakage * r_eff * (1 + tol) for v in seg_in.vdd]

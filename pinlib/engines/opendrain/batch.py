@@ -149,8 +149,8 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
                      axis=-1, keepdims=True)
     out.pick("rise-time", up, [le(np.where(reached, tr, np.inf), lim.tr_max)], warn, "s")
     tr_min = lim.tr_min(np.asarray(v, dtype=float))
-    if tr_min is not None:  # the fastest rise: the pull-up at its low end
-        out.pick("rise-time-min", up, [ge(phys.rise_time(rp_lo, ln.cb, ln.rise_factor),
+    if tr_min is not None:  # the fastest rise: the pull-up and Cb at their low ends
+        out.pick("rise-time-min", up, [ge(phys.rise_time(rp_lo, ln.cb_low, ln.rise_factor),
                                           tr_min)], warn, "s")
     # -- low levels
     raw, offset_levels = low_levels(v, rp_lo, ln.drivers, far, ctx.segs, ln.signal, phys)

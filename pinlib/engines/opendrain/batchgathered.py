@@ -58,4 +58,5 @@ def line_from(li: LineInputs, seg: Segment, parts: _Parts, scen: Scenario) -> _L
     receivers = [_Receiver(taps[id(r.tap)], r.v_il[None, :], r.v_ih[None, :])
                  for r in li.receivers]
     return _Line(li.signal, list(taps.values()), li.cb, li.leakage, drivers, receivers,
-                 li.r_parts, li.rp_min, li.rp_max, li.rise_factor, li.rp_leak, li.rp_fast)
+                 li.r_parts, li.rp_min, li.rp_max, li.rise_factor, li.rp_leak, li.rp_fast,
+                 li.cb_low)

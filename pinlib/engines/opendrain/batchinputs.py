@@ -18,7 +18,7 @@ import numpy as np
 from pinlib.core.quantity import Threshold
 from pinlib.core.valueclass import value_class
 from pinlib.engines.limits import OpenDrainLimits
-from pinlib.engines.opendrain.inputs import _offset_side
+from pinlib.engines.opendrain.inputs import _offset_side, low_end
 from pinlib.engines.opendrain.rules import (
     _NOT_RECEIVERS,
     SIGNALS,
@@ -271,6 +271,12 @@ class Scenario:
         """The tolerance applied to the effective pull-up in each check. [1]"""
         raise NotImplementedError
 
+    def low_end(self, tol: float) -> float:
+        """The factor from a capacitance as this scenario gives it to the lowest the
+        variant may have (its tolerance ``tol``): 1 where each variant is one board
+        (a sample, a corner), whose value is its own. [1]"""
+        return 1.0
+
 
 class WorstCase(Scenario):
     """The engine's corners: rails at ± their tolerance, pull-ups at the end that hurts
@@ -301,6 +307,9 @@ class WorstCase(Scenario):
 
     def board(self, bus, seg, parts):
         return parts["traces"], parts["cables"], parts["extra"]
+
+    def low_end(self, tol):
+        return low_end(tol)  # each capacitance is at the top of its tolerance
 
     def series(self, bus, seg, dev, signal):
         return dev.series_resistor or 0.0
@@ -379,6 +388,7 @@ class _Line:
     rise_factor: Any
     rp_leak: Any = math.inf  # the leakage's bound at the high level (rules.rp_leak_of)
     rp_fast: Any = 0.0     # the tr minimum's bound (rules.rp_fast_of)
+    cb_low: Any = None     # Cb with every tolerance at its low end (the fastest rise's)
     pullup: Any = None     # the design resistor on this line
     r_eff: tuple | None = None  # (pullup, every pull-up in parallel) once worked out
 
@@ -475,11 +485,15 @@ def _taps(seg: Segment, function: str, parts: _Parts, scen: Scenario) -> list[_T
 
 def _line(bus, seg, signal, function, v, parts, scen, lim, board) -> _Line:
     taps = _taps(seg, function, parts, scen)
-    c_pins = 0.0
+    c_pins = c_low = 0.0
     for t in taps:
         c_pins = c_pins + t.pin.c_in * scen.pin_factor(t.dev, bus)
+        c_low = c_low + (t.pin.c_in * scen.pin_factor(t.dev, bus)
+                         * scen.low_end(t.dev.capacitance_tolerance or 0.0))
     traces, cables, extra = board
     cb = c_pins + traces + cables + extra
+    c_low = c_low + ((traces + cables) * scen.low_end(seg.length_tolerance)
+                     + extra) * scen.low_end(seg.capacitance_tolerance)
     leak = 0.0
     for t in taps:
         leak = leak + t.pin.leakage
@@ -515,7 +529,7 @@ def _line(bus, seg, signal, function, v, parts, scen, lim, board) -> _Line:
     rp_max = rp_max_of(lim, rise_factor, cb)
     rp_leak = rp_leak_of(v, lim.v_nh_rel or 0.0, leak, [r.v_ih for r in receivers])
     return _Line(signal, taps, cb, leak, drivers, receivers, r_parts, rp_min, rp_max,
-                 rise_factor, rp_leak, rp_fast_of(lim, v, rise_factor, cb))
+                 rise_factor, rp_leak, rp_fast_of(lim, v, rise_factor, c_low), c_low)
 
 
 def _choose(s: _Seg) -> None:

@@ -178,6 +178,9 @@ class LineInputs:
     #: The smallest effective pull-up whose rise meets the mode's tr minimum,
     #: :func:`.rules.rp_fast_of`; 0 for none.  It steers ``auto`` as ``rp_leak`` does. [Ω]
     rp_fast: float = 0.0
+    #: Cb with every tolerance at its low end (the pins as stated, their maxima): the
+    #: fastest rise's, :data:`cb` being every contribution at its maximum. [F]
+    cb_low: float = math.nan
 
 
 @value_class
@@ -288,7 +291,7 @@ def _capacitance(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits, 
                  c_traces: float) -> dict:
     """The contributions to Cb, each at its maximum: pins, traces, cables, extra. [F]"""
     seg = seg_in.segment
-    c_pins = 0.0
+    c_pins = c_low = 0.0
     for t in taps:
         if t.pin.c_in is None:
             c = lim.c_pin
@@ -296,12 +299,23 @@ def _capacitance(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits, 
                              f"{_f(lim.c_pin, 'F')} maximum ({lim.source_pin})", f"{t.label} {up}")
         else:
             c = float(t.pin.c_in.value)
-        c_pins += c * (1.0 + (t.dev.capacitance_tolerance or 0.0))
+        tol = t.dev.capacitance_tolerance or 0.0
+        c_pins += c * (1.0 + tol)
+        c_low += c * (1.0 + tol) * low_end(tol)  # as the batch works it
     board_tol = 1.0 + seg.capacitance_tolerance
     c_cables = sum(float(c.part.line.capacitance.value) * c.length for c in seg.cables) * (
         1.0 + seg.length_tolerance) * board_tol
     c_extra = seg.extra_capacitance * board_tol
-    return {"pins": c_pins, "traces": c_traces, "cables": c_cables, "extra": c_extra}
+    # the same contributions with each tolerance at its low end (pins, board, lengths)
+    board_low = low_end(seg.capacitance_tolerance)
+    c_low += ((c_traces + c_cables) * low_end(seg.length_tolerance) + c_extra) * board_low
+    return {"pins": c_pins, "traces": c_traces, "cables": c_cables, "extra": c_extra,
+            "low": c_low}
+
+
+def low_end(tol: float) -> float:
+    """The factor from a value at the top of its tolerance ``tol`` to its bottom. [1]"""
+    return (1.0 - tol) / (1.0 + tol)
 
 
 def _leakage(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits, up: str) -> float:
@@ -428,6 +442,7 @@ def _line_inputs(signal: str, seg_in: SegmentInputs, lim: OpenDrainLimits,
     taps = _taps(seg_in.segment, SIGNALS[signal])
     up = signal.upper()
     cb_parts = _capacitance(taps, seg_in, lim, up, c_traces)
+    cb_low = cb_parts.pop("low")
     cb = cb_parts["pins"] + cb_parts["traces"] + cb_parts["cables"] + cb_parts["extra"]
     leak = _leakage(taps, seg_in, lim, up)
     drivers = _drivers(taps, seg_in, lim, up)
@@ -441,7 +456,7 @@ def _line_inputs(signal: str, seg_in: SegmentInputs, lim: OpenDrainLimits,
     return LineInputs(signal, taps, cb, cb_parts, leak, drivers, receivers, part_pullups,
                       r_parts, rp_min, weakest, rp_max, rise_factor,
                       weakest.tap.label if weakest else "", rp_leak=rp_leak,
-                      rp_fast=rp_fast_of(lim, v, rise_factor, cb))
+                      rp_fast=rp_fast_of(lim, v, rise_factor, cb_low), cb_low=cb_low)
 
 
 def _choose(seg_in: SegmentInputs) -> None:

@@ -191,10 +191,10 @@ def _never_rises(w: Words, bc, ln: LineInputs, rp_hi: float, basis: str,
 
 def _fastest_rise(w: Words, ln: LineInputs, rp_lo: float, defin: str) -> None:
     """The rise-time minimum where the mode has one (I2C Fast-mode): the rise through
-    the pull-up at its low end with the bus capacitance as stated.  The pins' values are
-    their maxima, so a line with less capacitance rises faster still: a rise under the
-    minimum here is under it on the board too (it fails), and one above it holds only
-    as far as the capacitance is really there, which the check says."""
+    the pull-up at its low end into Cb at the low end of its tolerances.  The pins'
+    values are their maxima, so a line with less capacitance rises faster still: a rise
+    under the minimum here is under it on the board too (it fails), and one above it
+    holds only as far as the capacitance is really there, which the check says."""
     bc = w.peek("rise-time-min")
     if bc is None or bc.signal != ln.signal.upper():
         return
@@ -202,7 +202,8 @@ def _fastest_rise(w: Words, ln: LineInputs, rp_lo: float, defin: str) -> None:
     up, tol = ln.signal.upper(), w.seg_in.tol
     chk = make(bc, w.lim.source_edges,
                f"{up} fastest rise {_f(bc.value[0], 's')} ({defin}, Rp {_f(rp_lo, 'Ω')} at "
-               f"−{_f(tol, '%')}, Cb {_f(ln.cb, 'F')}) against tr(min) "
+               f"−{_f(tol, '%')}, Cb {_f(ln.cb_low, 'F')} with its tolerances at their low "
+               f"ends) against tr(min) "
                f"{_f(bc.limit[0], 's')}; the pins' capacitances are their stated maxima, "
                "so a bus with less rises faster", subject=up,
                details={"definition": w.lim.rise_definition, "factor": ln.rise_factor})
