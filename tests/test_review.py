@@ -45,7 +45,13 @@ from pinlib.model.design import load_design
 from pinlib.model.result import CAUTION
 from pinlib.physics import pullup as pu
 from pinlib.present import plotdata, review
-from pinlib.studies.compare import compare_with_snapshot, save_snapshot, snapshot, value_label
+from pinlib.studies.compare import (
+    compare_with_snapshot,
+    format_figure,
+    save_snapshot,
+    snapshot,
+    value_label,
+)
 
 pytest.importorskip("altair")
 pytest.importorskip("vl_convert")
@@ -1113,6 +1119,14 @@ def test_the_changed_checks_table_names_each_check_by_its_label(tmp_path):
         assert f'<td title="{html.escape(c.check)}">{html.escape(check_label(c.check))}</td>' \
             in table
         assert f"<code>{html.escape(c.check)}</code>" not in table
+    # a limit that moved (the device's speed rating) shows before and after, as the text
+    # change list does: the value alone did not say why the status changed
+    moved = [c for c in changes.status_changes if c.old_limit != c.new_limit
+             and c.old is not None and c.new is not None]
+    assert moved
+    for c in moved:
+        assert (f"{format_figure(c.old_limit, c.unit)} → {format_figure(c.new_limit, c.unit)}"
+                in html.unescape(table))
 
 
 def test_notes_name_a_figure_by_its_label(built):
