@@ -1418,3 +1418,11 @@ def test_markdown_wrapping_keeps_a_long_word_whole():
     lines = _wrapped(f"the part {long_id} states no i_ol here", "- ")
     assert any(long_id in ln for ln in lines), lines
     assert all(len(ln) <= 80 for ln in lines if long_id not in ln)
+
+
+def test_the_crosstalk_caption_gives_a_minimum_at_the_search_end_as_a_bound(built):
+    # the demo's minimum spacing (18 µm) is the search's own smallest gap: the checks and
+    # figures read "18 µm or less", the chart's caption had dropped "or less"
+    md, _ = built.markdown()
+    text = " ".join(md.split())
+    assert "Dashed: the minimum spacing 18 µm or less, where no check fails" in text
