@@ -1359,3 +1359,40 @@ def test_unfitted_driver_says_its_own_pin_is_left_out(lib):
     d = load_design(DEMO)
     res = evaluate_bus(d.bus("flash"), d)
     assert not any("own pin capacitance" in n for ln in res.lines for n in ln.notes)
+
+
+def test_notes_of_a_line_with_several_drivers_name_the_one_they_rest_on(tmp_path):
+    # an invented CIPO chain of three peripherals: the electrical length and the "auto"
+    # series resistor rest on one driver's edge and r_out; the notes had said only "the
+    # driver's", and not that every driver goes through the one resistor
+    path = tmp_path / "d.toml"
+    path.write_text("""\
+format = "pinlib.design/1"
+title = "CIPO chain (invented test design)"
+
+[board.geometry.ms]
+kind = "microstrip"
+width = "0.2 mm"
+height = "0.18 mm"
+er = 4.2
+
+[[bus]]
+id = "spi1"
+protocol = "spi"
+clock = "10 MHz"
+supply = "3.3 V"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "nor-flash-spi" },
+  { ref = "U3", part = "adc-spi" },
+]
+lines.sclk = { length = "10 cm", geometry = "ms" }
+lines.cipo = { series_resistor = "auto", route = [
+  { from = "U1", to = "U2", length = "10 cm", geometry = "ms" },
+  { from = "U2", to = "U3", length = "10 cm", geometry = "ms" } ] }
+""", encoding="utf-8")
+    d = load_design(path)
+    res = evaluate_bus(d.bus("spi1"), d)
+    notes = " ".join(next(ln for ln in res.lines if ln.signal == "cipo").notes)
+    assert "of U2.cipo's" in notes or "of U3.cipo's" in notes
+    assert "the strongest of the line's 2 drivers" in notes

@@ -303,7 +303,9 @@ def _assemble(bus, nominal, specs, worst, seen) -> BusResult:
             if low is None:
                 out.notes.append(f"{fig}: none at a corner of the tolerances (see the "
                                  "checks there)")
+    auto = any(ln.series_resistor == "auto" for ln in bus.lines.values())
     out.notes.append(f"checks at their worst corner: {method_text(len(specs))}, "
-                     f"{len(seen)} boards evaluated (an \"auto\" series resistor kept at its "
-                     "nominal choice); line figures are the nominal board's")
+                     f"{len(seen)} boards evaluated"
+                     + (" (an \"auto\" series resistor kept at its nominal choice)" if auto
+                        else "") + "; line figures are the nominal board's")
     return out

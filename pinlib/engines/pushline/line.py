@@ -523,10 +523,14 @@ def _electrical_length(a: LineAnalysis, notes: list) -> None:
     """Electrical length against the fastest edge into the pins alone: of either corner
     of a push-pull driver whose part states a fast one (its edge makes the line long
     sooner)."""
-    a.edge_alone = min(_edge_alone(*x) for x in alone_inputs(a))
+    edge, fastest = min(((min(_edge_alone(*x) for x in _alone_of(a, d)), k)
+                         for k, d in enumerate(a.drivers)), key=lambda p: p[0])
+    a.edge_alone = edge
     a.long, a.ratio = line_model(a.stretches, a.edge_alone,
                                  td=a.delay if a.net is not None else None)
-    notes.append(f"one-way delay {_fmt(a.delay, 's')} is {a.ratio:.2f} of the driver's "
+    # of several drivers (CIPO, a shared GPIO line) the one whose edge is the fastest
+    whose = (f"{a.drivers[fastest].label}'s" if len(a.drivers) > 1 else "the driver's")
+    notes.append(f"one-way delay {_fmt(a.delay, 's')} is {a.ratio:.2f} of {whose} "
                  f"{_fmt(a.edge_alone, 's')} edge into the pins alone: electrically "
                  + ("long, beyond" if a.long else "short, within")
                  + f" 1/6 of the edge ({LONG_LINE_SOURCE})")
@@ -535,19 +539,23 @@ def _electrical_length(a: LineAnalysis, notes: list) -> None:
 def alone_inputs(a: LineAnalysis) -> list[tuple[float, float, float]]:
     """``(r, t_ramp, c_pins)`` of each edge :func:`_electrical_length` compares (the
     drivers' models filled)."""
+    return [x for d in a.drivers for x in _alone_of(a, d)]
+
+
+def _alone_of(a: LineAnalysis, d) -> list[tuple[float, float, float]]:
+    """``(r, t_ramp, c_pins)`` of each edge of driver ``d`` into the line's pins alone."""
     out = []
     # every pin's capacitance once; each driver's load is all of them but its own
     c_in = {id(p.device): p.c_in for p in a.loads}
     c_all = sum(c_in.values())
-    for d in a.drivers:
-        m = a.models[d.ref]
-        c_pins = c_all - c_in.get(id(d.device), 0.0) + a.line.extra_capacitance
-        out.append((m.r_fall, m.t_ramp_fall, c_pins))
-        if d.pin.drive != "open-drain":
-            out.append((m.r_rise, m.t_ramp_rise, c_pins))
-            if m.fast is not None:
-                f = m.fast
-                out += [(f.r_rise, f.t_ramp_rise, c_pins), (f.r_fall, f.t_ramp_fall, c_pins)]
+    m = a.models[d.ref]
+    c_pins = c_all - c_in.get(id(d.device), 0.0) + a.line.extra_capacitance
+    out.append((m.r_fall, m.t_ramp_fall, c_pins))
+    if d.pin.drive != "open-drain":
+        out.append((m.r_rise, m.t_ramp_rise, c_pins))
+        if m.fast is not None:
+            f = m.fast
+            out += [(f.r_rise, f.t_ramp_rise, c_pins), (f.r_fall, f.t_ramp_fall, c_pins)]
     return out
 
 

@@ -121,8 +121,13 @@ def _matched_words(a: LineAnalysis, r_drv: float) -> str:
             continue
         at = m.fast if m.fast is not None else m
         corner = " at its fast corner" if m.fast is not None else ""
+        n = sum(1 for e in a.drivers if e.pin.drive != "open-drain")
+        # one resistor for the line: sized for the strongest driver, and in every one's
+        # path (a weaker driver's edge slows through it: its checks say so)
+        most = (f", the strongest of the line's {n} drivers, each of which drives "
+                "through this one resistor") if n > 1 else ""
         return (f"; r_out: {d.label}{corner}, the mean of its driver model's rise "
-                f"{_fmt(at.r_rise, 'Ω')} and fall {_fmt(at.r_fall, 'Ω')}")
+                f"{_fmt(at.r_rise, 'Ω')} and fall {_fmt(at.r_fall, 'Ω')}{most}")
     return ""
 
 
