@@ -172,3 +172,14 @@ def test_a_long_list_of_names_names_the_first_and_counts_the_rest():
     assert few_named(refs, limit=2, conjunction="or") == "U1, U2 or 1,022 more"
     assert and_list(refs[:3]) == "U1, U2 and U3"
     assert and_list(refs[:9]) == "U1, U2, U3, U4, U5, U6, U7, U8 and 1 more"
+
+
+def test_a_lone_line_copy_of_a_bus_figure_keeps_its_line_name():
+    # a change list where only SDA's fall time moved holds fall_time and fall_time_sda,
+    # equal: it had kept the bus's copy, and "Fall time tf" lost its "SDA"
+    from pinlib.core.labels import shown_figures
+
+    assert shown_figures({"fall_time": (1, 2), "fall_time_sda": (1, 2)}) == ["fall_time_sda"]
+    # with both lines' copies equal to the bus's, the bus's alone (a figures table)
+    assert shown_figures({"fall_time": 1, "fall_time_sda": 1, "fall_time_scl": 1}) == [
+        "fall_time"]

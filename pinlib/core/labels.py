@@ -300,7 +300,9 @@ def shown_figures(values: Mapping[str, Any],
         if line is None or base not in values:
             continue
         lines = [f"{base}_{x}" for x in _LINES if f"{base}_{x}" in values]
-        if all(eq(values[x], values[base]) for x in lines):
+        # the line copies go only where each line has one, all equal to the bus's: a
+        # lone one (a change list where only SDA's moved) keeps its line's name
+        if len(lines) == len(_LINES) and all(eq(values[x], values[base]) for x in lines):
             drop.update(lines)
         else:
             drop.add(base)
