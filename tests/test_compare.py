@@ -1218,3 +1218,18 @@ def test_a_changed_value_without_a_source_says_so_rather_than_showing_blank():
     assert blank.format("U2").endswith(", basis: measured, no source named")
     plain = ValueChange("pins.sda.v_ol", old, {"value": 0.3, "unit": "V", "basis": "estimate"})
     assert plain.format("U2").endswith(", basis: estimate")
+
+
+def test_a_resistor_pinlib_chose_is_listed_whenever_it_changes():
+    # an "auto" pull-up re-chosen 2.7 kΩ -> 2.4 kΩ is a change on the bill of materials:
+    # a 15 % threshold had hidden its -11 % (values invented)
+    from pinlib.studies.compare.figures import figure_rows
+
+    def result(rp, cb):
+        return {"buses": [{"id": "b", "figures": {
+            "pullup_resistor": {"value": rp, "unit": "Ω"},
+            "bus_capacitance": {"value": cb, "unit": "F"}}}]}
+
+    rows = {r.name: r for r in figure_rows(result(2700.0, 100e-12), result(2400.0, 90e-12),
+                                           threshold=0.15)}
+    assert rows["pullup_resistor"].moved and not rows["bus_capacitance"].moved

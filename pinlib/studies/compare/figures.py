@@ -153,6 +153,10 @@ class FigureRow:
                 else self.change, "kind": self.kind}
 
 
+#: Figures that are a part pinlib chose ("auto" pull-ups and series resistors).
+CHOSEN_PARTS = frozenset({"pullup_resistor", "series_resistor"})
+
+
 def figure_rows(old_result: dict, new_result: dict, *, threshold: float = DEFAULT_THRESHOLD
                 ) -> list[FigureRow]:
     """Every figure of two results side by side, in the new result's order (figures only
@@ -180,7 +184,9 @@ def figure_rows(old_result: dict, new_result: dict, *, threshold: float = DEFAUL
             continue
         rel = _relative(ov, nv)
         if rel is not None:
-            moved = abs(rel) > threshold
+            # a part pinlib chose (an "auto" resistor) is a line of the bill of materials:
+            # listed whenever it changes, however little
+            moved = abs(rel) > threshold or (key[-1] in CHOSEN_PARTS and ov != nv)
             rows.append(FigureRow(*key, unit, ov, nv, rel, moved, "moved" if moved else "same"))
         else:
             differ = ov != nv
