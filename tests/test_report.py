@@ -387,8 +387,8 @@ def test_the_warning_band_says_a_rating_has_none(capsys, tmp_path):
     # U3 ... +2 %" passing: a rating (a part's supply range, a clock limit, an input's
     # highest voltage) passes up to its limit, and the line now says so, in every form
     gpio = ROOT / "workbooks" / "designs" / "gpio-reset-board.toml"
-    rule = ("a rating — a supply range, a clock limit, a highest input voltage — passes up to "
-            "its limit")
+    rule = ("a rating — a supply range, a clock limit, the highest DC voltage on a pin — "
+            "passes up to its limit")
     assert main(["check", str(gpio), "--detail"]) == 0
     assert f"(warn below 10 % margin; {rule})" in " ".join(capsys.readouterr().out.split())
     for kind, name in (("--md", "r.md"), ("--html", "r.html")):
