@@ -605,8 +605,8 @@ POINTS_FORM = "points must be (loads, times, labels)"
 POINTS_LENGTHS = "points: loads, times and labels differ in length"
 #: After a result's warning margin ("warn below 10% margin; ..."): the checks with no
 #: warning band, which pass up to their limit (warn_margin=0 in the engines).
-RATING_NO_WARN_BAND = ("a rating — a supply range, a clock limit, the highest DC voltage on a pin — "
-                       "passes up to its limit")
+RATING_NO_WARN_BAND = ("a rating — a supply range, a clock limit, the highest DC voltage on "
+                       "a pin — passes up to its limit")
 OPERATING_FORM = "operating must be (load, time) or (load, time, label)"
 CURVES_NOT_DRAWABLE = "no point of the curves can be drawn"
 TRACES_FORM = "traces must be a non-empty mapping of label to voltages"
