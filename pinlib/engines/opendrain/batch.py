@@ -145,8 +145,8 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     # a line its pins' leakage holds below the rise's upper level never completes the
     # rise (at either rail corner): it has no rise time (infinite), and the check fails
     # with the reason
-    reached = np.all(phys.high_level(v, rp_hi, ln.leakage) >= lim.measuring_levels(v)[1],
-                     axis=-1, keepdims=True)
+    voh = phys.high_level(v, rp_hi, ln.leakage)  # the high level: the v-oh checks' too
+    reached = np.all(voh >= lim.measuring_levels(v)[1], axis=-1, keepdims=True)
     out.pick("rise-time", up, [le(np.where(reached, tr, np.inf), lim.tr_max)], warn, "s")
     tr_min = lim.tr_min(np.asarray(v, dtype=float))
     if tr_min is not None:  # the fastest rise: the pull-up and Cb at their low ends
@@ -185,8 +185,7 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             _sink_check(ctx, out, up, rows).basis = [_index(ln.drivers, d) for _, d in rows]
         f["pullup_power"] = _reduce(np.max, [_worst_max(v * (v - lv[0]) / rp_lo)
                                              for lv in levels + offset_levels])
-    # -- high level
-    voh = phys.high_level(v, rp_hi, ln.leakage)
+    # -- high level (voh, worked out above for the rise)
     f["v_oh"] = np.min(voh, axis=-1, keepdims=True)
     if ln.receivers:
         out.pick("v-oh", up, [ge(voh, r.v_ih) for r in ln.receivers], warn,

@@ -288,8 +288,9 @@ def _taps(seg: Segment, function: str) -> list[_Tap]:
 
 
 def _capacitance(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits, up: str,
-                 c_traces: float) -> dict:
-    """The contributions to Cb, each at its maximum: pins, traces, cables, extra. [F]"""
+                 c_traces: float) -> tuple[dict, float]:
+    """The contributions to Cb, each at its maximum: pins, traces, cables, extra; and Cb
+    with each tolerance at its low end (the pins as stated). [F]"""
     seg = seg_in.segment
     c_pins = c_low = 0.0
     for t in taps:
@@ -309,8 +310,7 @@ def _capacitance(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits, 
     # the same contributions with each tolerance at its low end (pins, board, lengths)
     board_low = low_end(seg.capacitance_tolerance)
     c_low += ((c_traces + c_cables) * low_end(seg.length_tolerance) + c_extra) * board_low
-    return {"pins": c_pins, "traces": c_traces, "cables": c_cables, "extra": c_extra,
-            "low": c_low}
+    return {"pins": c_pins, "traces": c_traces, "cables": c_cables, "extra": c_extra}, c_low
 
 
 def low_end(tol: float) -> float:
@@ -441,8 +441,7 @@ def _line_inputs(signal: str, seg_in: SegmentInputs, lim: OpenDrainLimits,
     v = seg_in.vdd
     taps = _taps(seg_in.segment, SIGNALS[signal])
     up = signal.upper()
-    cb_parts = _capacitance(taps, seg_in, lim, up, c_traces)
-    cb_low = cb_parts.pop("low")
+    cb_parts, cb_low = _capacitance(taps, seg_in, lim, up, c_traces)
     cb = cb_parts["pins"] + cb_parts["traces"] + cb_parts["cables"] + cb_parts["extra"]
     leak = _leakage(taps, seg_in, lim, up)
     drivers = _drivers(taps, seg_in, lim, up)

@@ -79,11 +79,18 @@ def rp_min_of(v_max, v_ol, i_ol):
 def rp_max_of(lim: OpenDrainLimits, rise_factor, cb):
     """Rp(max) of a line, UM10204 eq. 1 (or the SMBus rise points): ``inf`` where Cb is
     0 (nothing bounds the pull-up from above); scalars or arrays. [Ω]"""
-    if np.ndim(cb) == 0 and np.ndim(rise_factor) == 0:
-        return float(rc.rp_max(lim.tr_max, cb, rise_factor)) if cb > 0 else math.inf
+    return _rp_for_rise(lim.tr_max, rise_factor, cb, math.inf)
+
+
+def _rp_for_rise(tr, rise_factor, cb, without_cb: float):
+    """The pull-up whose rise through ``cb`` takes ``tr``, UM10204 eq. 1 (``tr /
+    (factor·Cb)``), and ``without_cb`` where Cb is 0; a float for scalars, else an
+    array. [Ω]"""
+    if np.ndim(tr) == 0 and np.ndim(cb) == 0 and np.ndim(rise_factor) == 0:
+        return float(rc.rp_max(tr, cb, rise_factor)) if cb > 0 else without_cb
     cb_arr = np.asarray(cb, dtype=float)
     ok = cb_arr > 0
-    return np.where(ok, rc.rp_max(lim.tr_max, np.where(ok, cb_arr, 1.0), rise_factor), math.inf)
+    return np.where(ok, rc.rp_max(tr, np.where(ok, cb_arr, 1.0), rise_factor), without_cb)
 
 
 def rp_fast_of(lim: OpenDrainLimits, v, rise_factor, cb):
@@ -93,13 +100,7 @@ def rp_fast_of(lim: OpenDrainLimits, v, rise_factor, cb):
     has none.  Like :func:`rp_leak_of` it steers the ``auto`` choice only, and is not
     part of the window. ``v`` at the rail corners; scalars or batch columns. [Ω]"""
     tr_min = lim.tr_min(np.max(np.asarray(v, dtype=float), axis=-1, keepdims=np.ndim(v) > 1))
-    if tr_min is None:
-        return 0.0
-    if np.ndim(tr_min) == 0 and np.ndim(cb) == 0 and np.ndim(rise_factor) == 0:
-        return float(tr_min / (rise_factor * cb)) if cb > 0 else 0.0
-    cb_arr = np.asarray(cb, dtype=float)
-    ok = cb_arr > 0
-    return np.where(ok, tr_min / (rise_factor * np.where(ok, cb_arr, 1.0)), 0.0)
+    return 0.0 if tr_min is None else _rp_for_rise(tr_min, rise_factor, cb, 0.0)
 
 
 def rp_leak_of(v, v_nh_rel, leakage, v_ihs):

@@ -12,8 +12,6 @@ from __future__ import annotations
 
 import math
 
-import numpy as np
-
 from pinlib.core.labels import and_list, few_named
 from pinlib.engines.opendrain.arith import BY_PART, far_drivers
 from pinlib.engines.opendrain.batchfigures import one
@@ -174,11 +172,9 @@ def _never_rises(w: Words, bc, ln: LineInputs, rp_hi: float, basis: str,
     below the rise's upper measuring level (at a rail corner): the line never completes
     the rise and has no rise time (failed, with the reason, as a line that never falls
     fails its fall time)."""
-    c = int(np.argmin(w.seg_in.vdd))
-    vdd = float(w.seg_in.vdd[c])
+    vdd, held = held_high(w.seg_in, ln, rp_hi)
     v_hi = float(w.lim.measuring_levels(vdd)[1])
     up = ln.signal.upper()
-    held = max(vdd - ln.leakage * rp_hi, 0.0)
     reason = (f"{up} never rises to {_f(v_hi, 'V')}, where its rise time ends: the pins' "
               f"leakage {_f(ln.leakage, 'A')} through the pull-up holds it at {_f(held, 'V')} "
               f"on the rail's {_f(vdd, 'V')}")
@@ -187,6 +183,14 @@ def _never_rises(w: Words, bc, ln: LineInputs, rp_hi: float, basis: str,
     chk.margin = None
     _failed(chk, "a smaller pull-up, or parts that leak less (see VOH)")
     return chk
+
+
+def held_high(seg_in: SegmentInputs, ln: LineInputs, rp_hi: float) -> tuple[float, float]:
+    """The rail's minimum, and the level the pins' leakage through the pull-up ``rp_hi``
+    holds the line at there (never below 0 V): where the leakage's drop is the largest
+    share of the rail. [V]"""
+    vdd = float(seg_in.vdd[0])
+    return vdd, max(vdd - ln.leakage * rp_hi, 0.0)
 
 
 def _fastest_rise(w: Words, ln: LineInputs, rp_lo: float, defin: str) -> None:
@@ -246,27 +250,22 @@ def _leaky_rise_note(w: Words, ln: LineInputs, rp_hi: float, defin: str) -> None
     """A note where the pins' leakage through the pull-up lengthens the rise between the
     bus's measuring levels (``defin``) by :data:`LEAKY_RISE_NOTED` or more
     (``physics.pullup.rise_time_with_leakage``, at the rail's minimum, where the drop is
-    the largest share of it, and the pull-up at its top, the rise-time check's), or keeps
-    the line from reaching the upper level: the check keeps the specification's formula,
-    which leaves leakage out."""
-    vdd = float(w.seg_in.vdd[0])
+    the largest share of it, and the pull-up at its top, the rise-time check's): the
+    check keeps the specification's formula, which leaves leakage out.  A line held
+    short of the upper level has no rise at all: its check says so
+    (:func:`_never_rises`)."""
     if not ln.leakage > 0 or not ln.cb > 0:
         return
+    vdd, held = held_high(w.seg_in, ln, rp_hi)
     v_lo, v_hi = (float(x) for x in w.lim.measuring_levels(vdd))
     lo, hi = v_lo / vdd, v_hi / vdd
     t0 = float(rise_time_with_leakage(rp_hi, ln.cb, vdd, 0.0, lo, hi))
     t = float(rise_time_with_leakage(rp_hi, ln.cb, vdd, ln.leakage, lo, hi))
-    up = ln.signal.upper()
-    v_end = vdd - ln.leakage * rp_hi
-    head = (f"{up}: the pins' leakage {_f(ln.leakage, 'A')} through the pull-up "
-            f"{_f(rp_hi, 'Ω')} holds the line's high level at {_f(max(v_end, 0.0), 'V')} "
-            f"on the rail's minimum {_f(vdd, 'V')}")
-    if not math.isfinite(t):
-        w.grp.notes.append(f"{head}, short of {_f(v_hi, 'V')}: the line never completes "
-                           "the rise the rise-time check times by the specification's "
-                           "formula (which leaves leakage out); see v-oh")
-    elif t0 > 0 and t >= t0 * (1 + LEAKY_RISE_NOTED):
-        w.grp.notes.append(f"{head}, so its rise ({defin}) takes {_f(t, 's')}, "
+    if math.isfinite(t) and t0 > 0 and t >= t0 * (1 + LEAKY_RISE_NOTED):
+        w.grp.notes.append(f"{ln.signal.upper()}: the pins' leakage {_f(ln.leakage, 'A')} "
+                           f"through the pull-up {_f(rp_hi, 'Ω')} holds the line's high "
+                           f"level at {_f(held, 'V')} on the rail's minimum {_f(vdd, 'V')}"
+                           f", so its rise ({defin}) takes {_f(t, 's')}, "
                            f"{_f(t / t0 - 1, '%')} more than the specification's formula "
                            "that the rise-time check keeps (it leaves leakage out)")
 

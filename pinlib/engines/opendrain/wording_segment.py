@@ -28,7 +28,7 @@ from pinlib.engines.opendrain.rules import (
     SIGNALS,
     supply_range_text,
 )
-from pinlib.engines.opendrain.wording import Words, line, make, row_corner
+from pinlib.engines.opendrain.wording import Words, held_high, line, make, row_corner
 from pinlib.model.result import Group, check_true
 
 #: The units of the segment's own figures (the lines' are in ``explain._UNITS``).
@@ -56,7 +56,7 @@ def segment(ctx, seg_in: SegmentInputs, sb) -> Group:
     for name, x in sb.figures.items():
         grp.figure(name, None if x is None else x.item(0), _unit(name))
     _unbounded(grp)
-    _never_rises(grp, w)
+    _unrisen_figures(grp, w)
     for ln in seg_in.lines.values():
         line(w, ln)
     _timing(w, sb)
@@ -90,29 +90,27 @@ FALL_NONE = "none: {line} never falls to VIL (see Fall time)"
 
 #: Why a rise figure (and what is worked out from it) is none where the pins' leakage
 #: through the pull-up holds the line below the level that rise ends at: the line never
-#: gets there.  The rise-time and setup checks keep the specification's formulas, which
-#: leave leakage out (a note says so, ``wording._leaky_rise_note``).
+#: gets there (its rise-time check fails without a value, ``wording._never_rises``).
 RISE_NONE = ("none: {line} never rises to {level}, held at {held} by the pins' leakage "
              "through the pull-up (see VOH)")
 
 
-def _never_rises(grp: Group, w: Words) -> None:
+def _unrisen_figures(grp: Group, w: Words) -> None:
     """The rise figures of a line held below their upper level (at the rail's minimum,
-    the pull-up at its top, as ``wording._leaky_rise_note`` works it), and the clock and
-    setup margin worked out from them, are none, each with its reason."""
+    the pull-up at its top: :func:`.wording.held_high`), and the clock and setup margin
+    worked out from them, are none, each with its reason."""
     seg_in, lim = w.seg_in, w.lim
-    vdd = float(seg_in.vdd[0])
-    v_hi = float(lim.measuring_levels(vdd)[1])
     worst = {}
     for sig, ln in seg_in.lines.items():
-        held = vdd - ln.leakage * w.r_eff(sig) * (1 + seg_in.tol)
+        vdd, held = held_high(seg_in, ln, w.r_eff(sig) * (1 + seg_in.tol))
+        v_hi = float(lim.measuring_levels(vdd)[1])
         up = sig.upper()
         for name, level in (("rise_time", v_hi), ("rise_time_10_90", 0.9 * vdd)):
             if held < level and name not in worst:
                 worst[name] = RISE_NONE.format(line=up, level=_f(level, "V"),
-                                               held=_f(max(held, 0.0), "V"))
+                                               held=_f(held, "V"))
         if held < v_hi:
-            why = RISE_NONE.format(line=up, level=_f(v_hi, "V"), held=_f(max(held, 0.0), "V"))
+            why = RISE_NONE.format(line=up, level=_f(v_hi, "V"), held=_f(held, "V"))
             follows = {"sda": "sda_setup_margin", "scl": "scl_frequency_effective"}[sig]
             for name in (f"rise_time_{sig}", follows):
                 f = grp.figures.get(name)
