@@ -147,17 +147,24 @@ def _check_controllers_drive(rb: RawBus, devices: list[Device], err) -> None:
                    if bridge is not None and bridge.kind == "mosfet" else
                    f"{d.part_id} pin '{name}' ({fn}) has drive = \"{pin.drive}\": it only "
                    "reads the line")
-            able = sorted({o.ref for o in devices if o.ref != d.ref and not o.is_bridge
-                           and _pulls_low(o, fn)})
             up = sig.upper()
-            whom = (f"{and_list(able)} can pull {up} low" if able else
-                    f"no device on this bus can pull {up} low: add the part that "
-                    "controls the bus (a microcontroller, a host adapter)")
+            whom = _who_else(devices, d, lambda o, fn=fn: _pulls_low(o, fn),
+                             f"pull {up} low")
             raise err(M.CONTROLLER_CANNOT_DRIVE.format(signal=up), d.loc + ("role",),
                       value=d.role,
                       expected=f'role = "peripheral" here, and role = "controller" on a '
                                f"device whose {up} pin drives the line",
                       hint=f"{why}; {whom}")
+
+
+def _who_else(devices, d: Device, able, doing: str) -> str:
+    """The hint's half that names the other devices that ``able(device)`` says could be
+    the controller ("U1 can pull SCL low"), or says that none can and what to add."""
+    others = sorted({o.ref for o in devices if o.ref != d.ref and not o.is_bridge and able(o)})
+    if others:
+        return f"{and_list(others)} can {doing}"
+    return (f"no device on this bus can {doing}: add the part that controls the bus (a "
+            "microcontroller, a host adapter)")
 
 
 def _check_bridges(segments: list[Segment], err) -> None:
@@ -291,12 +298,9 @@ def _spi_controller_drives(devices, lines: dict, err) -> None:
         if got is None or got[1].drive == "push-pull":
             continue  # a missing pin is PART_LACKS_PIN's
         name, pin = got
-        able = sorted(d.ref for d in devices if d.ref != ctrl.ref and not d.is_bridge
-                      and (p := d.part.pin_for(fn, d.side)) is not None
-                      and p[1].drive == "push-pull")
-        whom = (f"{and_list(able)} can drive {sig.upper()}" if able else
-                f"no device on this bus drives {sig.upper()}: add the part that controls "
-                "the bus (a microcontroller, a host adapter)")
+        whom = _who_else(devices, ctrl,
+                         lambda o, fn=fn: (p := o.part.pin_for(fn, o.side)) is not None
+                         and p[1].drive == "push-pull", f"drive {sig.upper()}")
         raise err(M.SPI_CONTROLLER_CANNOT_DRIVE.format(signal=sig.upper()),
                   ctrl.loc + ("role",), value=ctrl.role,
                   expected=f'role = "peripheral" here, and role = "controller" on the '
