@@ -176,11 +176,12 @@ def _coupling_charts(result, keys, charts):
         charts.setdefault(place, []).append(
             ReviewChart(key, "noise-vs-spacing", title, "", None, err.message))
         return
+    from pinlib.present.values import search_bound_words
+
     # at the search's own end the minimum is a bound: "or less", as the figures say
-    bound = (" or less" if d.minimum_spacing is not None and d.searched_from is not None
-             and d.minimum_spacing <= d.searched_from else "")
     least = ("no spacing in the models' range passes" if d.minimum_spacing is None
-             else f"the minimum spacing {_f(d.minimum_spacing, 'm')}{bound}")
+             else f"the minimum spacing {_f(d.minimum_spacing, 'm')}"
+                  f"{search_bound_words(result.figures, 'minimum_spacing')}")
     caption = (f"Peak noise on the victim (the largest excursion from its held level at "
                f"any receiver) against the gap, for the design's {_f(d.length, 'm')} run; "
                f"each point is a spacing the engine solved in time. Shaded: the noise that "

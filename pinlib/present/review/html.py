@@ -351,13 +351,7 @@ class _Html:
                 subj = (c.subject or "") + (f" (was {c.old_subject})" if c.old_subject else "")
                 value = (f"{format_figure(c.old_value, c.unit)} → "
                          f"{format_figure(c.new_value, c.unit)}")
-                limit = c.new_limit if c.new is not None else c.old_limit
-                limit_s = "" if isinstance(limit, bool) or limit is None else \
-                    format_figure(limit, c.unit)
-                if (limit_s and c.old is not None and c.new is not None
-                        and c.old_limit != c.new_limit and c.old_limit is not None):
-                    # the limit moved (a part's rating): before → after, as the text says
-                    limit_s = f"{format_figure(c.old_limit, c.unit)} → {limit_s}"
+                limit_s = c.limit_text()  # before → after where it moved, as the text says
                 self.w(f'<tr class="r-{c.new or "fail"}"><td>{_e(c.path)}</td>'
                        f'<td title="{_e(c.check)}">{_e(check_label(c.check))}</td>'
                        f"<td>{_e(subj)}</td>"

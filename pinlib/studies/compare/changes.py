@@ -87,14 +87,21 @@ class StatusChange:
             vals.append(format_figure(self.new_value, self.unit))
         else:
             vals.append(format_figure(self.old_value, self.unit))
-        limit = self.new_limit if self.new is not None else self.old_limit
-        if limit is not None and not isinstance(limit, bool):
-            if self.old is not None and self.new is not None and self.old_limit != self.new_limit:
-                vals.append(f"limit {format_figure(self.old_limit, self.unit)} {_ARROW} "
-                            f"{format_figure(self.new_limit, self.unit)}")
-            else:
-                vals.append(f"limit {format_figure(limit, self.unit)}")
+        limit = self.limit_text()
+        if limit:
+            vals.append(f"limit {limit}")
         return ", ".join(vals)
+
+    def limit_text(self) -> str:
+        """The check's limit as text: before → after where it moved (a part's rating),
+        else the side present's; "" for none (a yes/no check)."""
+        limit = self.new_limit if self.new is not None else self.old_limit
+        if limit is None or isinstance(limit, bool):
+            return ""
+        if self.old is not None and self.new is not None and self.old_limit != self.new_limit:
+            return (f"{format_figure(self.old_limit, self.unit)} {_ARROW} "
+                    f"{format_figure(self.new_limit, self.unit)}")
+        return format_figure(limit, self.unit)
 
     def to_json(self) -> dict:
         out = {"path": self.path, "check": self.check, "subject": self.subject,
