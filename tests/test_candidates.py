@@ -13,6 +13,7 @@ import numpy as np
 import pytest
 
 from pinlib.cli import main
+from pinlib.core import messages as M
 from pinlib.core.errors import DesignError, InputError
 from pinlib.library.loader import Library, load_library
 from pinlib.library.values import Sourced
@@ -38,7 +39,13 @@ def assert_same_ranking(fast: cand.Ranking, slow: cand.Ranking) -> None:
             assert a.worst_margin == b.worst_margin, a.part
         else:
             assert a.worst_margin == pytest.approx(b.worst_margin, rel=1e-9), a.part
-        assert (a.worst_check or {}).get("id") == (b.worst_check or {}).get("id"), a.part
+        wa, wb = a.worst_check or {}, b.worst_check or {}
+        assert wa.get("id") == wb.get("id"), a.part
+        # a yes/no check set the worst in both or in neither; a device's own check
+        # names the same device
+        assert (wa.get("reason") == M.WORST_YES_NO) == (wb.get("reason") == M.WORST_YES_NO)
+        if wb.get("id") in cand.DEVICE_CHECKS:
+            assert wa.get("subject") == wb.get("subject"), a.part
         for key in ("margin_unit", "status_by"):
             got = ((a.worst_check or {}).get(key), (b.worst_check or {}).get(key))
             if key == "status_by":  # a batch names no subject where the engine kept none
@@ -91,6 +98,51 @@ def test_vectorized_ranking_equals_per_candidate_on_every_engine_branch(tmp_path
         assert all(c.method == "per-candidate" for c in fast.candidates)
         assert len(fast.buses) == 1 and len(fast.notes) == 1
         assert_same_ranking(fast, cand.rank_candidates_slow(d, ref))
+
+
+SWITCHED = """\
+format = "pinlib.design/1"
+title = "A device on a switched rail (invented)"
+
+[[bus]]
+id = "s"
+protocol = "i2c"
+mode = "fast"
+supply = "3.3 V"
+pullup = "2.2 kΩ"
+trace = { length = "10 cm", capacitance = "1 pF/cm" }
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "eeprom-i2c", switched = true },
+]
+"""
+
+
+def test_a_failing_yes_no_check_sets_the_worst_without_a_margin(tmp_path):
+    # the position's device sits on a switched rail: a candidate whose pins are not
+    # power-off tolerant fails the power-off check, which has no margin; its worst is
+    # that check with no number ("—"), not a passing check's positive margin
+    path = tmp_path / "d.toml"
+    path.write_text(SWITCHED, encoding="utf-8")
+    d = load_design(path)
+    fast, slow = cand.rank_candidates(d, "U2"), cand.rank_candidates_slow(d, "U2")
+    assert_same_ranking(fast, slow)
+    failing = [c for c in fast.candidates if c.status == "fail"]
+    assert failing and any(c.status == "pass" for c in fast.candidates)
+    yes_no = [c for c in failing if c.worst_margin is None]
+    assert yes_no
+    for c in yes_no:
+        assert c.worst_check["id"] == "power-off" and c.worst_check["subject"] == "U2"
+        assert c.margin_text() == "—"
+        assert c.margins  # still ordered among themselves by their other margins
+    for c in failing:  # a failing check of its own with a margin comes first: below 0
+        assert c.worst_margin is None or c.worst_margin < 0, c.part
+    text = fast.format_text(top=5, width=80)
+    assert "Power off U2" in text and M.WORST_YES_NO.split(",")[0] in text
+    assert all(len(ln) <= 80 for ln in text.splitlines())
+    # a pass (an off-tolerant part) is ranked by its margins as before
+    ok = next(c for c in fast.candidates if c.status == "pass")
+    assert ok.worst_margin is not None and ok.worst_check["id"] != "power-off"
 
 
 def _variants(n: int, seed: int = 7) -> Library:

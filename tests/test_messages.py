@@ -681,6 +681,15 @@ def _(env):
     return rank_candidates(load_design(demo), "U4").format_text(width=None)
 
 
+@case("WORST_YES_NO")
+def _(env):
+    from pinlib.studies.candidates import rank_candidates
+    from test_candidates import SWITCHED
+
+    (env.tmp / "sw.toml").write_text(SWITCHED, encoding="utf-8")
+    return rank_candidates(load_design(env.tmp / "sw.toml"), "U2").format_text(width=None)
+
+
 @case("SPI_CONTROLLER_CANNOT_DRIVE", M.SPI_CONTROLLER_CANNOT_DRIVE.format(signal="SCLK"))
 def _(env):
     # a memory marked as the controller: its SCLK pin only reads the clock

@@ -493,6 +493,9 @@ F_MAX_NOT_POSITIVE = "a maximum clock of 0 Hz allows no clock at all"
 SPI_MODES_BAD_LIST = ("a list of the SPI modes the part works in, each once (an empty "
                       "list would allow none)")
 SPI_MODE_NOT_0_TO_3 = "an SPI mode is a whole number from 0 to 3 (CPOL·2 + CPHA)"
+#: Why a candidate's worst margin is "—" where a yes/no check (power-off, a supported SPI
+#: mode) sets its status.
+WORST_YES_NO = "a yes/no check, which has no margin, sets the status"
 STATUS_SET_ELSEWHERE = ("† {status} set by {check}: a check no part at {ref} can move "
                         "(pinlib check shows it)")
 LEVEL_BELOW_GROUND = "an output low level below ground at this rail"

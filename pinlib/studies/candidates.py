@@ -124,6 +124,10 @@ FIXED_CHECKS = ("scl-frequency", "bridge-gate-drive", "bridge-offset-facing")
 #: every candidate's worst was the controller's supply range, +8.3 %).
 OWN_CHECKS = ("supply-range", "f-max", "device-speed", "input-voltage", "spi-mode")
 
+#: Checks of one device whose subject is that device alone, in a batch as in the
+#: engine's wording: :data:`OWN_CHECKS` and a switched device's power-off.
+DEVICE_CHECKS = (*OWN_CHECKS, "power-off")
+
 _RANK = {"pass": 0, "warn": 1, "fail": 2, "error": 3}
 
 
@@ -448,8 +452,11 @@ def _summary_of(results: list[BusResult], places) -> tuple:
                     fixed = {"bus": r.id, "segment": seg_id, "line": line, "id": c.id,
                              "subject": c.subject}
                 continue
-            # a margin that does not exist (its check says why) counts as −inf, as in a batch
-            if c.margin is None and c.reason is None:
+            # a margin that does not exist (its check says why) counts as −inf, as in a
+            # batch; a yes/no check (no margin, no reason) has none to count: it can set
+            # the worst only by its status, after any check of that status with a margin
+            yes_no = c.margin is None and c.reason is None
+            if yes_no and c.status == "pass":
                 continue
             # a margin in volts (a translator's gate overdrive) is no fraction of a limit:
             # it sets the status, and is the worst only where no check of that status
@@ -457,13 +464,18 @@ def _summary_of(results: list[BusResult], places) -> tuple:
             # a check of the worst status, then of the smallest margin: a warn is set by
             # a warning check, not by a passing one at a smaller margin
             key = worst_order(c, missing=-math.inf)
+            if yes_no:  # after every check of its status with a margin, in a unit or not
+                key = (key[0], True, math.inf)
             _, absolute, m = key
-            if not absolute:
+            if not absolute and not yes_no:
                 margins.append(m)
             if rank is None or key < rank:
-                rank, best, where = key, m, {"bus": r.id, "segment": seg_id, "line": line,
-                                             "id": c.id, "subject": c.subject}
-                if absolute:
+                rank, best = key, None if yes_no else m
+                where = {"bus": r.id, "segment": seg_id, "line": line, "id": c.id,
+                         "subject": c.subject}
+                if yes_no:
+                    where["reason"] = M.WORST_YES_NO
+                if absolute and not yes_no:
                     where["margin_unit"] = c.margin_unit
                 if c.margin is None and c.reason:  # why the worst has no number
                     where["reason"] = c.reason
@@ -603,7 +615,7 @@ def _batch_summaries(bus: Bus, dev: Device, design: Design, ref: str, parts: lis
     """Per candidate: (status code, worst margin, where, figures) on one open-drain bus,
     from one batch."""
     bb = ob.build(bus, design, ob.WorstCase(len(parts)), swap=(ref, parts), collected=collected)
-    cols, codes, where, use = [], [], [], []
+    cols, codes, where, use, yes_no = [], [], [], [], []
     status = np.zeros(len(parts), dtype=np.int8)
     fixed_code = np.full(len(parts), -1, dtype=np.int8)
     fixed: list[dict | None] = [None] * len(parts)
@@ -620,8 +632,6 @@ def _batch_summaries(bus: Bus, dev: Device, design: Design, ref: str, parts: lis
                 fixed_code[j] = st[j]
                 fixed[j] = {"bus": bus.id, "segment": None if single else seg_id,
                             "line": None, "id": c.id, "subject": subject}
-        if c.margin is None:
-            continue
         if c.id in OWN_CHECKS and not dev.is_bridge:
             # each variant's subject: the row that set its worst (as the engine names it)
             rows = np.zeros(len(parts), dtype=int) if c.row is None else \
@@ -632,13 +642,19 @@ def _batch_summaries(bus: Bus, dev: Device, design: Design, ref: str, parts: lis
             counts = np.array([_names(x, ref) for x in subjects], dtype=bool)
         else:
             counts = np.full(len(parts), _ranks(c.id, dev))
+        code = np.broadcast_to(c.status, (len(parts),))
+        truth = c.margin is None  # a yes/no check: it counts where it is not a pass
+        if truth:
+            counts = counts & (code > 0)
         if not counts.any():
             continue
-        cols.append(np.where(np.isnan(c.margin), -np.inf, c.margin))
-        codes.append(np.broadcast_to(c.status, (len(parts),)))
+        cols.append(np.full(len(parts), np.inf) if truth else
+                    np.where(np.isnan(c.margin), -np.inf, c.margin))
+        codes.append(code)
         use.append(counts)
+        yes_no.append(truth)
         where.append({"bus": bus.id, "segment": None if single else seg_id,
-                      "line": None, "id": c.id, "signal": c.signal})
+                      "line": None, "id": c.id, "signal": c.signal, "check": c})
     seg = next(s.id for s in bus.segments if any(d.ref == ref for d in s.devices))
     sb = next(s for s in bb.segments if s.id == seg)
     out = []
@@ -648,14 +664,25 @@ def _batch_summaries(bus: Bus, dev: Device, design: Design, ref: str, parts: lis
         # _summary_of), among the checks that count for the candidate
         code = np.where(ok, np.stack(codes, axis=1), -1)
         worst_status = ok & (code == np.max(code, axis=1, keepdims=True))
-        idx = np.argmin(np.where(worst_status, mg, np.inf), axis=1)
+        # a yes/no check (no margin) only after every check of its status with one
+        truth = np.array(yes_no, dtype=bool)
+        tier = np.where(worst_status, truth.astype(np.int8), 2)
+        first = tier == tier.min(axis=1, keepdims=True)
+        idx = np.nanargmin(np.where(first, np.where(truth, 0.0, mg), np.nan), axis=1)
     for j in range(len(parts)):
         figs = {}
         for name, unit in FIGURES["open-drain"]:
             arr = sb.figures.get(name)
             figs[name] = (None if arr is None else float(arr[j]), unit)
         if cols and ok[j].any():
-            m, w, ms = float(mg[j, idx[j]]), dict(where[idx[j]]), sorted(mg[j, ok[j]].tolist())
+            m = None if yes_no[idx[j]] else float(mg[j, idx[j]])
+            w = dict(where[idx[j]])
+            c = w.pop("check")
+            if c.id in DEVICE_CHECKS:  # the device it is of, as the engine names it
+                w["subject"] = _batch_subject(c, j)
+            if m is None:
+                w["reason"] = M.WORST_YES_NO
+            ms = sorted(mg[j, ok[j] & ~truth].tolist())
             worst_code = int(code[j, idx[j]])
         else:
             m, w, ms, worst_code = None, None, [], None
@@ -819,9 +846,11 @@ class _Summaries:
         for bus, _ in self.places:
             st, m, w, f, ms = self.per[p.id][bus.id]
             status = max(status, st)
-            # as on one bus: the worst status first, a relative margin before one in volts
-            key = (-st, bool(w and w.get("margin_unit")), m)
-            if m is not None and (rank is None or key < rank):
+            # as on one bus: the worst status first, a relative margin before one in
+            # volts, a yes/no check (no margin) last
+            yes_no = m is None and (w or {}).get("reason") == M.WORST_YES_NO
+            key = (-st, True, math.inf) if yes_no else (-st, bool(w and w.get("margin_unit")), m)
+            if (m is not None or yes_no) and (rank is None or key < rank):
                 rank, best, where = key, m, w
             elif where is None and w is not None and w.get("status_by"):
                 where = w
@@ -837,6 +866,6 @@ def _where(w: dict) -> dict:
     """A batch check's place in the form engine results give (line checks of an
     open-drain bus sit on their segment, with the signal as subject's first word)."""
     out = {"bus": w["bus"], "segment": w["segment"], "line": None, "id": w["id"],
-           "subject": w.get("signal")}
-    out.update({k: w[k] for k in ("margin_unit", "status_by") if k in w})
+           "subject": w.get("subject", w.get("signal"))}
+    out.update({k: w[k] for k in ("margin_unit", "status_by", "reason") if k in w})
     return out

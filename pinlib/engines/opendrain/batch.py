@@ -408,7 +408,7 @@ def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
         for t in taps:
             if t.dev is d:
                 ok = np.logical_and(ok, t.pin.off_tolerant)
-        out.truth("power-off", None, ok)
+        out.truth("power-off", None, ok, (d.ref,))
 
 
 def _bridge_checks(ctx, s: _Seg, out: _Out) -> None:

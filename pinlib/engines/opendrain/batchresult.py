@@ -227,8 +227,11 @@ class _Out:
             _column(np.asarray(status, dtype=np.int8), self.n),
             unit))
 
-    def truth(self, id, signal, ok):
+    def truth(self, id, signal, ok, names=None):
+        """A yes/no check (no value, limit or margin): fails where ``ok`` is False;
+        ``names``: what it is of (one name), as :attr:`BatchCheck.names`."""
         self.add(id, signal, None, None, None, np.where(np.asarray(ok), 0, 2))
+        self.checks[-1].names = names
 
 
 def _cells(x) -> list:
