@@ -823,6 +823,27 @@ def test_a_route_diagram_puts_each_branch_right_below_the_row_it_leaves(tmp_path
     ]
 
 
+def test_a_route_diagram_joins_the_branches_of_one_point(tmp_path):
+    # invented star: S feeds U2, a branch on to A (which feeds U3 and U5) and U4; every
+    # branch of S was drawn "└", as if each were the last, and nothing joined the first
+    # to the one below its own sub-branch
+    from pinlib.present.review.text import route_diagram
+
+    last = '  { ref = "U3", part = "nor-flash-spi" },\n'
+    head = HEAD.replace(last, last + '  { ref = "U4", part = "nor-flash-spi" },\n'
+                        '  { ref = "U5", part = "nor-flash-spi" },\n')
+    path = _design_text(tmp_path, head, _stretch("U1", "S"), _stretch("S", "U2", "1 cm"),
+                        _stretch("S", "A", "13 cm"), _stretch("A", "U3", "3 cm"),
+                        _stretch("A", "U5", "3 cm"), _stretch("S", "U4", "3 cm"))
+    rows = route_diagram(load_design(path).buses[0].lines["sclk"])
+    assert rows == [
+        "U1 ─2 cm─ S ─1 cm─ U2",
+        "          ├ S ─13 cm─ A ─3 cm─ U3",
+        "          │           └ A ─3 cm─ U5",
+        "          └ S ─3 cm─ U4",
+    ]
+
+
 def test_a_route_diagram_names_a_cable_stretch_by_its_class(tmp_path):
     # invented: a board trace to a connector J1, then 25 cm of ribbon to U2 and a trace
     # on to U3; the cable stretch read "─25 cm─" like a trace of the board

@@ -100,7 +100,8 @@ def route_diagram(line, width: int = DIAGRAM_WIDTH, start: str | None = None) ->
     point its first stretch onwards on the same row (``U1 ─2 cm─ T1 ─13 cm─ U3``; a cable
     stretch names its class, ``J1 ─25 cm ribbon-cable─ U3``), every
     other stretch from a point on a row of its own below, indented to that point
-    (``└ T1 ─1 cm─ U2``), the branches farthest along the row first.  A path wider than
+    (``└ T1 ─1 cm─ U2``; ``├`` and ``│`` down to the next branch of the same point),
+    the branches farthest along the row first.  A path wider than
     ``width`` goes on in the next row from its last point (``… U7 ─2 cm─ U8``).  Empty
     for a line without a route."""
     points = list(getattr(line, "route", ()) or ())
@@ -143,7 +144,35 @@ def route_diagram(line, width: int = DIAGRAM_WIDTH, start: str | None = None) ->
         # row it leaves, not below another branch's rows), those of one point in order
         branches.sort(key=lambda b: -(len(b[1]) - len(b[1].lstrip(" "))))
         starts[0:0] = branches
-    return rows
+    return _join_siblings(rows)
+
+
+def _join_siblings(rows: list[str]) -> list[str]:
+    """``rows`` with each branch that a later branch from the same point follows drawn
+    ``├``, and ``│`` down from it through the rows between (its own path's)."""
+    out = list(rows)
+    for i, row in enumerate(out):
+        col = len(row) - len(row.lstrip(" "))
+        if not row.startswith("└ ", col):
+            continue
+        head = row[col:].split(" ─", 1)[0].replace("└", "", 1)  # "└ T1": its point
+        j = i + 1
+        # the rows of its own path: indented further, or its own "…" continuation
+        while j < len(out) and (_indent(out[j]) > col or out[j].startswith("… ", col)):
+            j += 1
+        if j == len(out) or _indent(out[j]) != col or \
+                not out[j][col:].startswith("└" + head + " ─"):
+            continue
+        out[i] = row[:col] + "├" + row[col + 1:]
+        for k in range(i + 1, j):
+            r = out[k].ljust(col + 1)
+            if r[col] == " ":
+                out[k] = r[:col] + "│" + r[col + 1:]
+    return out
+
+
+def _indent(row: str) -> int:
+    return len(row) - len(row.lstrip(" "))
 
 
 def _route_of(design_bus, place) -> list[str]:
