@@ -681,6 +681,15 @@ def _(env):
     return rank_candidates(load_design(demo), "U4").format_text(width=None)
 
 
+@case("FLIGHTS_HEAD")
+def _(env):
+    from pinlib.engines.dispatch import check_design
+    from pinlib.present.detail import detail_lines
+
+    route = Path(__file__).resolve().parent / "data" / "spi-route.toml"
+    return " ".join(ln.strip() for ln in detail_lines(check_design(load_design(route)), 200))
+
+
 @case("WORST_YES_NO")
 def _(env):
     from pinlib.studies.candidates import rank_candidates

@@ -520,6 +520,26 @@ def test_each_peripheral_has_its_own_flights_in_the_budget(tmp_path):
         assert setup[ref].value == pytest.approx(want, rel=1e-12)
 
 
+def test_detail_lists_each_peripherals_flights_from_its_budget(tmp_path):
+    # the flights were in the JSON checks' details only: --detail now lists them per
+    # device, each equal to the budget's own flight (mode 0: sampled on the rise)
+    from pinlib.core.quantity import format_value
+    from pinlib.present.detail import detail_lines, flight_rows
+
+    design, bus = _check(_flight_design(), tmp_path)
+    rows = {(r[0], r[1]): r[2:] for r in flight_rows(bus)}
+    for p in bus.workings.peripherals:
+        want = {"SCLK sampling edge": (p.sclk["rise"].early, p.sclk["rise"].late),
+                "COPI": (p.copi.early, p.copi.late),
+                "CIPO, back at the controller": (p.cipo.early, p.cipo.late)}
+        for label, ends in want.items():
+            assert rows[(p.ref, label)] == [format_value(t, "s") for t in ends], label
+    assert {ref for ref, _ in rows} == {p.ref for p in bus.workings.peripherals}
+    text = detail_lines(check_design(design), 80)
+    assert any(ln.strip().startswith("flights: from the driver's timing") for ln in text)
+    assert all(len(ln) <= 80 for ln in text)
+
+
 def test_max_clock_follows_the_worst_device_and_names_it(tmp_path):
     _, bus = _check(_flight_design(), tmp_path)
     limits = bus.workings.clock_limits()

@@ -493,6 +493,11 @@ F_MAX_NOT_POSITIVE = "a maximum clock of 0 Hz allows no clock at all"
 SPI_MODES_BAD_LIST = ("a list of the SPI modes the part works in, each once (an empty "
                       "list would allow none)")
 SPI_MODE_NOT_0_TO_3 = "an SPI mode is a whole number from 0 to 3 (CPOL·2 + CPHA)"
+#: The heading of an SPI bus's flights in ``pinlib check --detail``.
+FLIGHTS_HEAD = ("flights: from the driver's timing reference (its output at 50 % of its "
+                "supply into its test load) to the receiver's VIL(max) or VIH(min), "
+                "earliest and latest, as the timing checks above take them (— for an "
+                "end no check takes)")
 #: Why a candidate's worst margin is "—" where a yes/no check (power-off, a supported SPI
 #: mode) sets its status.
 WORST_YES_NO = "a yes/no check, which has no margin, sets the status"
