@@ -774,6 +774,25 @@ def test_corner_and_monte_carlo_rows_name_checks_by_their_labels(capsys, monkeyp
     assert "    PASS  " in study and "    pass  " not in study
 
 
+def test_a_corner_row_names_the_device_its_worst_is_of():
+    # the demo's I2C supply-range rows read "sensors/main-3v3 Supply range" while the
+    # SPI rows named their device: a check over several devices now names the one its
+    # worst corner is of, the engine's own subject at the same corner
+    res = whatif.corners(load_design(DEMO))
+    nominal = check_design(load_design(DEMO))
+    for c in res.checks:
+        if c.bus != "sensors" or c.id not in ("supply-range", "input-voltage"):
+            continue
+        seg = next(g for g in nominal.bus("sensors").segments if g.id == c.segment)
+        engine = next(e for e in seg.checks if e.id == c.id)
+        # one rail per segment here: the worst device is the engine's at its own corner
+        assert c.subject == engine.subject, c.name
+        assert c.label.endswith(f" {engine.subject}") and c.to_json()["subject"] == c.subject
+    # a name that already ends with its subject (an SPI device's own row) adds none
+    spi = res.find("flash", "supply-range")
+    assert spi.subject is None and spi.label.count("U") == 1
+
+
 def test_sensitivities_are_standardized_coefficients_read_in_blocks(monkeypatch):
     from types import SimpleNamespace
 

@@ -72,11 +72,17 @@ class CornerCheck:
     nominal_status: str | None = None
     nominal_margin: float | None = None
     margin_unit: str | None = None
+    #: The element the worst corner's value is of, where the check compares several
+    #: (a device's supply range, an input's voltage, a driver's low level) and its
+    #: name does not already say. [1]
+    subject: str | None = None
 
     @property
     def label(self) -> str:
-        """:attr:`name` for people: its check id as its label (``flash CIPO setup U7``)."""
-        return sampled_check_label(self.name, self.id)
+        """:attr:`name` for people: its check id as its label (``flash CIPO setup U7``),
+        and the element its worst corner is of (``sensors/main-3v3 Supply range U4``)."""
+        label = sampled_check_label(self.name, self.id)
+        return f"{label} {self.subject}" if self.subject else label
 
     def to_json(self) -> dict:
         return {"name": self.name, "bus": self.bus, "segment": self.segment,
@@ -87,7 +93,8 @@ class CornerCheck:
                 "corner": [{"parameter": n, "end": e, "gain": json_number(g)} for n, e, g in
                            self.corner],
                 "worst_case_status": self.nominal_status,
-                "worst_case_margin": json_number(self.nominal_margin)}
+                "worst_case_margin": json_number(self.nominal_margin),
+                "subject": self.subject}
 
 
 @value_class
@@ -265,8 +272,21 @@ def _bus_checks(bus, run, worst: np.ndarray, params: list[Parameter],
             None if c.limit is None else float(c.limit[j]),
             ob.STATUS[int(c.status[j])], corner,
             ec.status if ec is not None else None, ec.margin if ec is not None else None,
-            ec.margin_unit if ec is not None else None))
+            ec.margin_unit if ec is not None else None, _subject(c, j, nm["name"])))
     return out
+
+
+def _subject(c, j: int, name: str) -> str | None:
+    """What row ``j``'s worst of a batch check that compares several elements is of
+    (None for a check of one, or where ``name`` already ends with it)."""
+    if not c.names:
+        return None
+    if c.row is None:
+        got = c.names[0] if len(c.names) == 1 else None
+    else:
+        rows = np.broadcast_to(c.row, (j + 1,)) if np.ndim(c.row) == 0 else c.row
+        got = c.names[int(rows[j])]
+    return None if got is None or name.endswith(f" {got}") else got
 
 
 def _runner(bus, design: Design, params: list[Parameter], nominal, collected, bar):
