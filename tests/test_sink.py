@@ -52,6 +52,12 @@ def test_push_pull_driver_against_a_strong_pullup_fails(tmp_path):
     assert "pp-ctrl" in chk.source and "i_ol" in chk.source
     # derived: (V - v_ol) / i_ol = 3.1 kΩ, the smallest pull-up whose current is i_ol
     assert "3.1 kΩ" in chk.fix
+    # derived: a driver rated for i at VOL 0.2 V sinks V / (Rp + 0.2 V / i), within i only
+    # from i = (V - 0.2 V) / Rp = 3.13 mA on; the fix named the current it draws now
+    # (2.78 mA), which a stronger sink raises past its own rating
+    need = (VDD - 0.2) / rp
+    assert f"rated to sink at least {need * 1e3:.3g} mA" in chk.fix
+    assert VDD / (rp + 0.2 / need) == pytest.approx(need, rel=1e-12)
     assert ln.status == "fail"
 
 

@@ -82,10 +82,14 @@ def _check(a: LineAnalysis, d: Endpoint, rp: float, rail: float, v_ol: float,
     fix = None
     if current > i_ol:
         rp_min = (rail - v_ol) / i_ol - a.rs
+        # a driver rated for i at this v_ol sinks V / (Rp + Rs + v_ol/i): within i only
+        # from (V - v_ol) / (Rp + Rs) on (its own current, not this one's, which a
+        # stronger sink raises)
+        need = (rail - v_ol) / (rp + a.rs)
         fix = (f"keep the line's pull-ups together at or above {_fmt(rp_min, 'Ω')} over "
-               f"their tolerance, or use a driver rated for {_fmt(current, 'A')}: its part "
-               f"states its low level ({_fmt(v_ol, 'V')}) only up to {_fmt(i_ol, 'A')}, "
-               "and level-low relies on it")
+               f"their tolerance, or use a driver rated to sink at least {_fmt(need, 'A')} "
+               f"at {_fmt(v_ol, 'V')}: its part states its low level ({_fmt(v_ol, 'V')}) "
+               f"only up to {_fmt(i_ol, 'A')}, and level-low relies on it")
     return check_max(
         "sink-current", current, i_ol, "A", d.source("i_ol"),
         f"{a.signal} sink current {_fmt(current, 'A')} into {d.label} (pull-up "
