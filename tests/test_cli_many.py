@@ -749,6 +749,14 @@ def test_swap_over_designs_names_an_old_part_no_library_holds(tmp_path, capsys):
     err = " ".join(err.split())
     assert "field '--part'" in err and "(got 'eeprom-i2')" in err
     assert "closest: eeprom-i2c" in err
+    # in capitals, as docs/cli.md promises: offered the id in its own case (it was
+    # refused as a malformed OLD=NEW, with no suggestion)
+    assert main(["swap", "--part", "EEPROM-I2C=rtc-i2c", str(a)]) == 2
+    err = " ".join(capsys.readouterr().err.split())
+    assert "(got 'EEPROM-I2C')" in err and "closest: eeprom-i2c" in err
+    assert main(["swap", str(a), "U4=RTC-I2C"]) == 2
+    err = " ".join(capsys.readouterr().err.split())
+    assert "(got 'RTC-I2C')" in err and "rtc-i2c" in err
     assert a.read_text(encoding="utf-8") == before
     # a known part that no design places still reads as before
     assert main(["swap", "--part", "led-driver-fmplus=rtc-i2c", str(a)]) == 0
@@ -762,7 +770,10 @@ def test_swap_over_designs_names_a_new_part_no_library_holds_once_up_front(tmp_p
     a, b = _board(tmp_path, "a.toml"), _board(tmp_path, "b.toml")
     before = a.read_text(encoding="utf-8")
     assert main(["swap", "--part", "eeprom-i2c=EEPROM-i2cc", str(a), str(b)]) == 2
-    capsys.readouterr()  # the pair's form is refused as written (a part id is lowercase)
+    # an id in capitals is no id of the library: named with its closest, as any unknown
+    out, err = capsys.readouterr()
+    err = " ".join(err.split())
+    assert "(got 'EEPROM-i2cc')" in err and "closest: eeprom-i2c" in err
     assert main(["swap", "--part", "eeprom-i2c=eeprom-i2cc", str(a), str(b), "--write"]) == 2
     out, err = capsys.readouterr()
     assert out == ""

@@ -26,11 +26,14 @@ __all__ = ["add_parser", "run", "threshold_type", "parse_assignments"]
 EXAMPLES = """\
 examples:
   pinlib swap pinlib-demo/workbooks/designs/demo-board.toml U4=io-expander-i2c
-  pinlib swap board.toml U4=eeprom-hicap U7=nor-flash-spi --threshold 2%
-  pinlib swap board.toml U4=eeprom-hicap --library ./parts --write
-  pinlib swap board.toml U4=eeprom-hicap --json > swap.json
-  pinlib swap --part eeprom-i2c=eeprom-hicap 'boards/*.toml'
-  pinlib swap --part eeprom-i2c=eeprom-hicap 'boards/*.toml' --write
+  pinlib swap board.toml U4=adc-i2c U9=temp-humidity-sensor --threshold 2%
+  pinlib swap board.toml U4=team-eeprom --library ./parts --write
+  pinlib swap board.toml U4=adc-i2c --json > swap.json
+  pinlib swap --part eeprom-i2c=rtc-i2c 'boards/*.toml'
+  pinlib swap --part eeprom-i2c=team-eeprom --library ./parts 'boards/*.toml'
+  pinlib swap --part eeprom-i2c=rtc-i2c 'boards/*.toml' --write
+
+(team-eeprom: a part of the team's library folder ./parts; the other ids are built in)
 
 The text lists what changed: checks whose status changed, margins and figures that
 moved by more than the threshold (5 % unless --threshold) and the part values behind
@@ -45,7 +48,9 @@ exit status: 0 the swapped design passes or warns, 1 a check fails, 2 a refused
 substitution or a design/library that is not valid.
 """
 
-_ASSIGN = re.compile(r"^\s*([^=\s]+)\s*=\s*([a-z0-9][a-z0-9-]*)\s*$")
+#: ``REF=PART`` and ``OLD=NEW``: an id in either case here, so that one in capitals
+#: meets the library's "unknown part" with its closest ids rather than a form error.
+_ASSIGN = re.compile(r"^\s*([^=\s]+)\s*=\s*([a-z0-9][a-z0-9-]*)\s*$", re.IGNORECASE)
 
 
 def threshold_type(text: str) -> float:
@@ -401,11 +406,11 @@ def _text(design, swap_rows, rows, before, after, changes, detail=False) -> list
 # --- one substitution over many designs -------------------------------------------------
 
 def parse_part_pairs(items) -> dict[str, str]:
-    """``["eeprom-i2c=eeprom-hicap", ...]`` -> ``{"eeprom-i2c": "eeprom-hicap"}``."""
-    return _pairs(items, _PAIR, "--part", M.SWAP_PART_FORM, "e.g. eeprom-i2c=eeprom-hicap")
+    """``["eeprom-i2c=rtc-i2c", ...]`` -> ``{"eeprom-i2c": "rtc-i2c"}``."""
+    return _pairs(items, _PAIR, "--part", M.SWAP_PART_FORM, "e.g. eeprom-i2c=rtc-i2c")
 
 
-_PAIR = re.compile(r"^\s*([a-z0-9][a-z0-9-]*)\s*=\s*([a-z0-9][a-z0-9-]*)\s*$")
+_PAIR = re.compile(r"^\s*([a-z0-9][a-z0-9-]*)\s*=\s*([a-z0-9][a-z0-9-]*)\s*$", re.IGNORECASE)
 
 
 def _known_olds(parts: dict, summaries, library_folders) -> None:
