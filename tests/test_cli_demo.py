@@ -59,6 +59,20 @@ def test_default_folder_is_pinlib_demo_in_the_working_folder(tmp_path, capsys, m
     assert "pinlib check pinlib-demo/workbooks/designs/demo-board.toml" in out
 
 
+def test_the_next_commands_fit_80_columns_and_paste_whole(tmp_path, capsys, monkeypatch):
+    # "pinlib report pinlib-demo/... --html pinlib-demo/review.html" ran to 92 columns
+    monkeypatch.chdir(tmp_path)
+    monkeypatch.setenv("COLUMNS", "80")
+    code, out, _ = run(capsys, "demo")
+    assert code == 0
+    assert all(len(ln) <= 80 for ln in out.splitlines()), out
+    report = out[out.index("  pinlib report"):].split("\n  jupyter")[0]
+    # continued as a shell reads it: one command once the " \\" breaks are joined
+    assert report.replace(" \\\n    ", " ").strip() == (
+        "pinlib report pinlib-demo/workbooks/designs/demo-board.toml --html "
+        "pinlib-demo/review.html")
+
+
 def test_refuses_to_overwrite_and_writes_nothing(tmp_path, capsys):
     folder = tmp_path / "d"
     mine = folder / "workbooks" / "designs" / "demo-board.toml"

@@ -16,7 +16,7 @@ from pinlib.cli import SUMMARIES
 from pinlib.cli.helptext import HelpLayout
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, WriteError
-from pinlib.present.terminal import shell_word
+from pinlib.present.terminal import fitted_command, shell_word
 
 __all__ = ["add_parser", "run", "source_folder", "demo_files", "DEFAULT_FOLDER"]
 
@@ -106,9 +106,11 @@ def run(args) -> int:
     for rel in files:
         print(f"  {target / rel}")
     print("\nNext:")
-    print(f"  pinlib check {design}")
-    print(f"  pinlib report {design} --html {shell_word(str(folder / 'review.html'))}")
-    print(f"  jupyter lab {shell_word(str(target))}")
+    for words in (["pinlib", "check", design],
+                  ["pinlib", "report", design, "--html", shell_word(str(folder / "review.html"))],
+                  ["jupyter", "lab", shell_word(str(target))]):
+        # continued with " \\" where it passes the terminal's width, pasting whole
+        print(fitted_command(" ", words))
     if not extras.installed("notebook"):
         print("  (the workbooks need the notebook extra: pip install 'pinlib[notebook]')")
     return 0
