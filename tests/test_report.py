@@ -89,6 +89,9 @@ def test_problem_line_holds_value_limit_margin_and_fix(demo):
     # demo's translator class, low rail 1.71 V − threshold 1.5 V)
     assert text.startswith("WARN sensors/sensor-1v8 Q1: Translator gate drive 210 mV")
     assert "limit ≥ 0 V" in text and "margin +210 mV" in text
+    # a warning at a positive margin says the band it warns within (the 1 V rule of
+    # thumb, common practice, no source), which the line did not
+    assert "margin +210 mV (warns below 1 V)" in text
     assert text.endswith("; fix: " + c.fix)
 
 

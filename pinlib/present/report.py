@@ -68,6 +68,11 @@ def _against(c: Check) -> str:
     margin = margin_text(c)
     if margin:
         text += f", margin {margin}"
+    below = (c.details or {}).get("warn_below") if isinstance(c.details, dict) else None
+    if c.status == "warn" and isinstance(below, (int, float)) and c.margin_unit:
+        # a warning at a positive margin in a unit: the band it warns within (the
+        # gate drive's 1 V rule of thumb), which the status line's percent does not say
+        text += f" (warns below {format_value(below, c.margin_unit)})"
     return text
 
 
