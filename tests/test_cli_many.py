@@ -838,3 +838,14 @@ def test_swap_over_designs_counts_in_words():
 
     assert _counted(1, "check") == "1 check" and _counted(0, "check") == "0 checks"
     assert _counted(16, "margin") == "16 margins"
+
+
+def test_detail_over_several_designs_is_refused_naming_the_command_for_each(tmp_path, capsys):
+    # "pinlib check 'boards/*.toml' --detail" printed the one line per design and left
+    # --detail unsaid, where --corners over several designs says it takes one at a time
+    a, b = _board(tmp_path, "a.toml"), _board(tmp_path, "b.toml")
+    assert main(["check", str(a), str(b), "--detail"]) == 2
+    out, err = capsys.readouterr()
+    err = " ".join(err.split())
+    assert out == "" and "field '--detail'" in err
+    assert "run 'pinlib check DESIGN --detail' on each design" in err

@@ -139,7 +139,8 @@ def _run_many(args, paths) -> int:
     from pinlib.studies.many import check_many
 
     for flag, given in (("--corners", args.corners), ("--monte-carlo", args.monte_carlo),
-                        ("--seed", args.seed is not None)):
+                        ("--seed", args.seed is not None),
+                        ("--detail", getattr(args, "detail", False))):
         if given:
             raise InputError(M.ONE_DESIGN_ONLY, field=flag,
                              hint="run 'pinlib check DESIGN " + flag + "' on each design")
