@@ -432,8 +432,11 @@ def test_characters_that_act_on_a_terminal_are_shown_not_obeyed(tmp_path, capsys
     out = capsys.readouterr().out
     for raw in ("\x1b[2J", "\r", "\u202e", "\x07"):
         assert raw not in out
-    # (the line's wrapping takes the carriage return for a space)
-    assert "Bench \\x1b[2J board \\u202eLIAF\\x07 Greenhouse" in out
+    # the carriage return shown as its escape too: the line's wrapping took it for a
+    # space, where the one-line-per-design output showed \x0d
+    assert "Bench \\x1b[2J board\\x0d\\u202eLIAF\\x07 Greenhouse" in out
+    main(["check", str(design), str(DEMO)])
+    assert "board\\x0d\\u202eLIAF" in capsys.readouterr().out
     assert '"Bench \\u001b[2J' in design.read_text(encoding="utf-8")  # the file as it was
     # on a terminal the status words keep their colours, and nothing else gets through
     monkeypatch.delenv("NO_COLOR", raising=False)
