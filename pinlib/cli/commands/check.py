@@ -76,7 +76,8 @@ def add_parser(sub) -> None:
                    help="also draw N boards within the tolerances and report each check's "
                         "pass fraction (I2C, SMBus, SPI, GPIO)")
     p.add_argument("--seed", metavar="S", type=seed_type, default=None,
-                   help="seed of the Monte Carlo draws (repeatable runs)")
+                   help="seed of the Monte Carlo draws (repeatable runs; only with "
+                        "--monte-carlo)")
     p.add_argument("--progress", action="store_true",
                    help="show a progress bar even when standard error is not a terminal")
     add_output_options(p)
@@ -84,8 +85,8 @@ def add_parser(sub) -> None:
                    help="with several designs: check them in N processes (default: the "
                         "machine's cores, at most one per design)")
     p.add_argument("--against-snapshots", action="store_true", dest="against_snapshots",
-                   help="with several designs: list, per design, what moved since its "
-                        "saved snapshot (pinlib check DESIGN --save)")
+                   help="list, per design (one or several), what moved since its saved "
+                        "snapshot (pinlib check DESIGN --save), one line each")
     p.set_defaults(run=run)
 
 
