@@ -460,3 +460,23 @@ def test_a_row_of_one_column_is_named_in_the_singular():
     with pytest.raises(LibraryError) as got:
         ibis.parse_ibis("\n".join(lines) + "\n", "invented.ibs")
     assert "1 column where 4 columns belong" in str(got.value), str(got.value)
+
+
+def test_a_refused_value_is_named_at_its_ibis_line_and_nothing_is_written(tmp_path, capsys):
+    # Once named the part file it would have written (…/demo-x.toml:14, field
+    # 'pins.sda.c_in'), which did not exist.
+    from pinlib.cli import main
+    # invented test input: C_comp written 3meg, which IBIS reads as 3 mF (m is milli)
+    text = ibis_text(model_type="Open_drain").replace("C_comp 3.0pF", "C_comp 3meg")
+    ibs = tmp_path / "invented.ibs"
+    ibs.write_text(text)
+    line = text.splitlines().index("C_comp 3meg 2.5pF 3.5pF") + 1
+    parts = tmp_path / "parts"
+    code = main(["parts", "import", str(ibs), "--component", "DEMO-IO", "--pin", "SDA=i2c-sda",
+                 "--pin", "SCL=i2c-scl", "--id", "demo-x", "--into", str(parts)])
+    err = capsys.readouterr().err
+    assert code == 2
+    assert f"{ibs}:{line}, field '[Model] io33, C_comp': outside the allowed range" in err
+    assert "expected at least 0 F and at most" in err and "pins.sda.c_in" in err
+    assert "demo-x.toml" not in err
+    assert not parts.exists()

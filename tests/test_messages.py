@@ -3976,6 +3976,15 @@ def _(env):
                    "--id", "x", "--into", str(env.tmp / "parts"))
 
 
+@case("IBIS_VALUE_WOULD_BE", M.IBIS_VALUE_WOULD_BE.format(field="pins.sda.c_in"))
+def _(env):
+    from tests.test_ibis import ibis_text
+    # invented test input: C_comp written 3meg, which IBIS reads as 3 mF
+    ibs = env.write("m.ibs", ibis_text().replace("C_comp 3.0pF", "C_comp 3meg"))
+    return env.cli("parts", "import", str(ibs), "--component", "DEMO-IO", "--pin",
+                   "SDA=i2c-sda", "--id", "x", "--into", str(env.tmp / "parts"))
+
+
 @pytest.mark.parametrize(("name", "expected", "trigger"), CASES)
 def test_message(name, expected, trigger, tmp_path, monkeypatch, capsys):
     text = getattr(M, name)
