@@ -480,3 +480,15 @@ def test_a_refused_value_is_named_at_its_ibis_line_and_nothing_is_written(tmp_pa
     assert "expected at least 0 F and at most" in err and "pins.sda.c_in" in err
     assert "demo-x.toml" not in err
     assert not parts.exists()
+
+
+@pytest.mark.parametrize("how", [["--yes"], ["--pin", "SDA=i2c-sda"]])
+def test_writing_without_an_id_names_the_missing_option(how, tmp_path, capsys):
+    # Once, with --yes: the guess printed again with "add --yes", then "field '--id':
+    # not a pin mapping".
+    code, out, err = _import(tmp_path, capsys, "--component", "DEMO-IO", *how,
+                             "--into", str(tmp_path / "parts"))
+    assert code == 2
+    assert "field '--id': no --id given: the part to write needs an id" in err
+    assert "pin mapping" not in err and "add --yes" not in out
+    assert not (tmp_path / "parts").exists()

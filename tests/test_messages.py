@@ -3976,6 +3976,14 @@ def _(env):
                    "--id", "x", "--into", str(env.tmp / "parts"))
 
 
+@case("IMPORT_NEEDS_ID")
+def _(env):
+    from tests.test_ibis import ibis_text
+    ibs = env.write("m.ibs", ibis_text())
+    return env.cli("parts", "import", str(ibs), "--component", "DEMO-IO", "--yes",
+                   "--into", str(env.tmp / "parts"))
+
+
 @case("IBIS_VALUE_WOULD_BE", M.IBIS_VALUE_WOULD_BE.format(field="pins.sda.c_in"))
 def _(env):
     from tests.test_ibis import ibis_text
