@@ -927,3 +927,64 @@ def test_new_names_a_field_the_class_has_as_the_next_step(tmp_path, monkeypatch,
         code, out, err = run(capsys, "parts", "record", "x-part", field, "60 pF/m",
                              "--source", "invented rev A", "--library", str(tmp_path))
         assert code == 0, err
+
+
+def test_check_lists_what_the_first_problems_of_a_part_hide(lib, capsys):
+    # The checks between fields ran only once every field read: v_il above v_ih, and a
+    # fast corner on an open-drain pin, were reported only after the bare number, the
+    # unit and the value table without 'value' were fixed.
+    _, team = lib
+    # invented test inputs: each line below one problem
+    (team / "a.toml").write_text(textwrap.dedent("""\
+        format = "pinlib.part/1"
+        id = "t-a"
+        title = "a"
+        category = "sensor"
+        extends = "base"
+        [pins.sda]
+        c_in = 8
+        v_il = "0.8 VDD"
+        v_ih = "0.7 VDD"
+        [timing]
+        f_max = "1 mhz"
+        """), encoding="utf-8")
+    (team / "b.toml").write_text(textwrap.dedent("""\
+        format = "pinlib.part/1"
+        id = "t-b"
+        title = "b"
+        category = "sensor"
+        extends = "base"
+        [pins.sda]
+        c_in = { source = "datasheet rev A, table 5" }
+        fast = { r_out = "10 Ω" }
+        """), encoding="utf-8")
+    code, out, _ = run(capsys, "parts", "check", "team")
+    found = [x.split("':")[0] + "'" for x in out.splitlines() if x.startswith("team/")]
+    assert code == 1
+    assert found == ["team/a.toml:7, field 'pins.sda.c_in'",
+                     "team/a.toml:8, field 'pins.sda.v_il'",
+                     "team/a.toml:11, field 'timing.f_max'",
+                     "team/b.toml:7, field 'pins.sda.c_in'",
+                     "team/b.toml:8, field 'pins.sda.fast'"], out
+    assert "v_il 0.8 VDD lies above v_ih 0.7 VDD" in out
+    assert "a fast corner belongs to a push-pull output" in out
+    assert "note:" not in out  # every check ran on the fields that read
+
+
+def test_check_says_when_a_part_s_later_checks_cannot_run(lib, capsys):
+    # a field every part needs is missing: the checks of the part as a whole wait for it
+    _, team = lib
+    (team / "m.toml").write_text(textwrap.dedent("""\
+        format = "pinlib.part/1"
+        id = "t-m"
+        title = "m"
+        [pins.sda]
+        function = "i2c-sda"
+        c_in = 8
+        """), encoding="utf-8")
+    code, out, _ = run(capsys, "parts", "check", "team/m.toml")
+    assert code == 1
+    assert f"note: team/m.toml: {M.PART_CHECKS_WAIT}" in out, out
+    code, out, _ = run(capsys, "parts", "check", "team/m.toml", "--json")
+    notes = json.loads(out)["notes"]
+    assert [n["problem"] for n in notes] == [M.PART_CHECKS_WAIT]

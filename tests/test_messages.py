@@ -2287,6 +2287,16 @@ def _(env):
     return next(p["message"] for p in problems if p["file"].endswith("child.toml"))
 
 
+@case("PART_CHECKS_WAIT")
+def _(env):
+    # invented test input: no category (a field every part needs) and a bare number
+    path = env.write("team/m.toml", 'format = "pinlib.part/1"\nid = "m"\ntitle = "m"\n'
+                     '[pins.sda]\nfunction = "i2c-sda"\nc_in = 8\n')
+    code = main(["parts", "check", str(path), "--json"])
+    assert code == 1
+    return json.loads(env.capsys.readouterr().out)["notes"][0]["message"]
+
+
 @case("FIRST_PROBLEM", lambda: M.FIRST_PROBLEM.format(message=""))
 def _(env):
     env.write("team/broken.toml", "this is not TOML\n")

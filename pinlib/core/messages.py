@@ -333,6 +333,8 @@ ROUTE_DEVICE_OF_OTHER_BUS = "the point names a device of another bus, not of thi
 # ---------------------------------------------------------------- pinlib/cli/commands/
 NO_FOLDER_FOR_NEW_PART = "no folder to write the new part into"
 PART_DOES_NOT_LOAD = "the part does not load"
+PART_CHECKS_WAIT = ("some checks of this part (between its fields, of the part as a whole) "
+                    "could not run: they need the problems listed for it fixed first")
 LIBRARY_HAS_PROBLEMS = ("{n} problem{s} in the library (run 'pinlib parts check'); parts "
                         "with problems are left out")
 FIRST_PROBLEM = "the first: {message}"

@@ -26,6 +26,24 @@ def _under(path, root: tuple[Path, Path]) -> bool:
     return any(p == r or p.is_relative_to(r) for p in _places(path) for r in root)
 
 
+def _beyond_first(lib, problems: list, root) -> tuple[list, list]:
+    """``problems`` with those the first ones hid (:mod:`pinlib.library.further`) of each
+    part that does not load, in ``root`` (None: the whole library); and a note for
+    each part some of whose checks could not run."""
+    from pinlib.core.errors import LibraryError
+    from pinlib.library.further import further_problems
+
+    notes, out = [], list(problems)
+    for pid, pf in lib.files.items():
+        if pid in lib.parts or (root is not None and not _under(pf.path, root)):
+            continue
+        found, blocked = further_problems(pid, lib.files)
+        out += [p for p in found if root is None or (p.file and _under(p.file, root))]
+        if blocked:
+            notes.append(LibraryError(M.PART_CHECKS_WAIT, file=str(pf.path)))
+    return out, notes
+
+
 def run_check(args, load) -> int:
     """`pinlib parts check [FOLDER]`: every problem of the part files (``load(args,
     extra)`` gives the library); exit 1 when one is found."""
@@ -43,6 +61,7 @@ def run_check(args, load) -> int:
         for pf in lib.files.values():  # a datasheet or measured basis without its source
             problems += unsourced(pf)
         scope = "the library"
+        root = None
         n_files = len(lib.files)
     else:
         folder = Path(args.folder)
@@ -75,6 +94,7 @@ def run_check(args, load) -> int:
 
         n_files = 1 if one is not None else len(part_paths(folder)[0])  # as the walk read
         scope = _rel(one or folder)
+    problems, notes = _beyond_first(lib, problems, root)
     # A problem of a class is a problem of every part that extends it, each failing
     # with the same error at the class's line: listed once.
     once: dict = {}
@@ -86,13 +106,16 @@ def run_check(args, load) -> int:
         p.file is None, p.file or "", p.line or 0, p.field or ""))
     if args.json:
         print(json.dumps({"checked": scope, "files": n_files,
-                          "problems": [p.to_dict() for p in problems]},
+                          "problems": [p.to_dict() for p in problems],
+                          "notes": [n.to_dict() for n in notes]},
                          indent=2, ensure_ascii=False))
     else:
         from pinlib.present.terminal import fitted
 
         for p in problems:
             print(fitted(p.message))
+        for note in notes:
+            print(fitted(f"note: {note.message}"))
         n = len(problems)
         verdict = "no problems" if not n else f"{n} problem{plural_s(n)}"
         where = f", {scope}" if one is not None else f" in {scope}"
