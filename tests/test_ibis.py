@@ -492,3 +492,21 @@ def test_writing_without_an_id_names_the_missing_option(how, tmp_path, capsys):
     assert "field '--id': no --id given: the part to write needs an id" in err
     assert "pin mapping" not in err and "add --yes" not in out
     assert not (tmp_path / "parts").exists()
+
+
+def test_import_warns_of_a_part_no_bus_can_take_and_of_a_sink_without_data(tmp_path, capsys):
+    # The README's example mapped SDA alone, without --i-ol: the part was written and
+    # `parts check` said "no problems", yet no I2C bus could take it and its sink had
+    # no rating to be checked against; nothing said so.
+    parts = tmp_path / "parts"
+    code, out, err = _import(tmp_path, capsys, "--component", "DEMO-IO", "--pin",
+                             "SDA=i2c-sda", "--id", "demo-x", "--into", str(parts))
+    assert code == 0 and (parts / "demo-x.toml").exists()  # warnings, not a refusal
+    flat = " ".join(err.split())
+    assert "warning:" in flat and "field 'pins.sda': pins of i2c/smbus (i2c-sda) but no " \
+        "i2c-scl pin: the part cannot be placed on such a bus" in flat, err
+    assert "an open-drain pin without v_ol and i_ol" in flat and "--i-ol CURRENT" in flat
+    code, out, err = _import(tmp_path, capsys, "--component", "DEMO-IO", "--pin",
+                             "SDA=i2c-sda", "--pin", "SCL=i2c-scl", "--id", "demo-y",
+                             "--into", str(parts), "--i-ol", "3mA")
+    assert code == 0 and "warning:" not in err, err

@@ -333,6 +333,14 @@ ROUTE_DEVICE_OF_OTHER_BUS = "the point names a device of another bus, not of thi
 # ---------------------------------------------------------------- pinlib/cli/commands/
 NO_FOLDER_FOR_NEW_PART = "no folder to write the new part into"
 PART_DOES_NOT_LOAD = "the part does not load"
+PIN_SET_INCOMPLETE = ("pins of {protocols} ({have}) but no {lack} pin: the part cannot be "
+                      "placed on such a bus")
+PIN_SET_RULE = "every device on such a bus to have {needs}"
+OPEN_DRAIN_NO_SINK_POINT = ("an open-drain pin without {missing}: its low level and sink "
+                            "current are checked against no rating of the part (an I2C "
+                            "or SMBus bus takes the specification's sink point instead)")
+SINK_POINT_RULE = "v_ol and i_ol, the datasheet's low level at a sink current"
+IBIS_GIVE_I_OL = "--i-ol CURRENT reads v_ol from the model's [Pulldown] table at that current"
 PART_CHECKS_WAIT = ("some checks of this part (between its fields, of the part as a whole) "
                     "could not run: they need the problems listed for it fixed first")
 LIBRARY_HAS_PROBLEMS = ("{n} problem{s} in the library (run 'pinlib parts check'); parts "
@@ -724,6 +732,7 @@ MODULES = (
     "pinlib.library.fields",
     "pinlib.library.folders",
     "pinlib.library.plausible",
+    "pinlib.library.pinsets",
     "pinlib.library.sources",
     "pinlib.library.record",
     "pinlib.library.ibis",

@@ -18,11 +18,12 @@ from pinlib.core import messages as M
 from pinlib.core.errors import LibraryError
 from pinlib.core.protocols import PIN_FUNCTIONS, PROTOCOLS
 from pinlib.core.quantity import format_si
-from pinlib.core.tomlfile import toml_key
+from pinlib.core.tomlfile import toml_key, tomllib
 from pinlib.core.valueclass import value_class
 from pinlib.library import loader
 from pinlib.library.ibis import IbisFile
 from pinlib.library.ibisderive import Derived, _model_of, derive_pin
+from pinlib.library.pinsets import pin_set_warnings
 from pinlib.library.record import (
     _check_id,
     _comment,
@@ -252,11 +253,17 @@ def import_part(library: loader.Library, ibis: IbisFile, component: str,
     text = part_text(ibis, component, pins, new_id, origins=origins, **kw)
     target = Path(into_folder) / f"{new_id}.toml"
     try:  # before the folder is made: a refused part leaves nothing behind
-        _validate(library, new_id, target, text)
+        part = _validate(library, new_id, target, text)
     except LibraryError as err:
         raise _in_ibis(err, str(target), origins) from None
     folder = team_folder(into_folder, "an imported part belongs in a team folder")
-    return write_new_part(library, new_id, folder / f"{new_id}.toml", text)
+    path = write_new_part(library, new_id, folder / f"{new_id}.toml", text)
+    if kw.get("warnings") is not None:  # what the part lacks to be of use on a bus
+        pf = loader.PartFile(path, tomllib.loads(text), text, False)
+        for w in pin_set_warnings(part, pf):
+            sink = w.expected == M.SINK_POINT_RULE
+            kw["warnings"].append((w.with_hint(M.IBIS_GIVE_I_OL) if sink else w).message)
+    return path
 
 
 def _in_ibis(err: LibraryError, target: str, origins: dict) -> LibraryError:

@@ -48,6 +48,7 @@ def run_check(args, load) -> int:
     """`pinlib parts check [FOLDER]`: every problem of the part files (``load(args,
     extra)`` gives the library); exit 1 when one is found."""
     from pinlib.core.errors import LibraryError
+    from pinlib.library.pinsets import pin_set_warnings
     from pinlib.library.plausible import part_warnings
     from pinlib.library.sources import unsourced
 
@@ -58,6 +59,7 @@ def run_check(args, load) -> int:
         problems = list(lib.problems)
         for pid in lib.parts:  # implausible values, each listed with the file that set it
             problems += part_warnings(lib.parts[pid], lib, own_only=True)
+            problems += pin_set_warnings(lib.parts[pid], lib.files[pid])
         for pf in lib.files.values():  # a datasheet or measured basis without its source
             problems += unsourced(pf)
         scope = "the library"
@@ -76,7 +78,8 @@ def run_check(args, load) -> int:
         root = _places(one or folder)  # _under(file, file) holds: that file alone
         problems = [p for p in lib.problems if p.file and _under(p.file, root)]
         problems += [w for pid in lib.parts if _under(lib.files[pid].path, root)
-                     for w in part_warnings(lib.parts[pid], lib, own_only=True)]
+                     for w in (part_warnings(lib.parts[pid], lib, own_only=True)
+                               + pin_set_warnings(lib.parts[pid], lib.files[pid]))]
         # A part of the folder that does not load because of a file it extends.
         for pid, pf in lib.files.items():
             if pid in lib.parts or not _under(pf.path, root):
