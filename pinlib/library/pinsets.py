@@ -7,7 +7,8 @@
   checked against no rating of the part (an I2C or SMBus bus takes the specification's
   sink point in their place, and says so in its notes).
 
-``pinlib parts check`` lists them as problems and ``pinlib parts import`` warns of them.
+``pinlib parts check`` and ``pinlib parts import`` print them as warnings (the part is
+valid: ``parts check`` does not count them as problems).
 Abstract classes are left out: the parts that extend them complete them.
 """
 

@@ -8,7 +8,7 @@ from pathlib import Path
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
-from pinlib.core.labels import plural_s
+from pinlib.core.labels import counted, plural_s
 from pinlib.present.terminal import shown_path as _rel
 
 
@@ -59,7 +59,8 @@ def run_check(args, load) -> int:
         problems = list(lib.problems)
         for pid in lib.parts:  # implausible values, each listed with the file that set it
             problems += part_warnings(lib.parts[pid], lib, own_only=True)
-            problems += pin_set_warnings(lib.parts[pid], lib.files[pid])
+        warned = [w for pid in lib.parts for w in pin_set_warnings(lib.parts[pid],
+                                                                   lib.files[pid])]
         for pf in lib.files.values():  # a datasheet or measured basis without its source
             problems += unsourced(pf)
         scope = "the library"
@@ -78,8 +79,9 @@ def run_check(args, load) -> int:
         root = _places(one or folder)  # _under(file, file) holds: that file alone
         problems = [p for p in lib.problems if p.file and _under(p.file, root)]
         problems += [w for pid in lib.parts if _under(lib.files[pid].path, root)
-                     for w in (part_warnings(lib.parts[pid], lib, own_only=True)
-                               + pin_set_warnings(lib.parts[pid], lib.files[pid]))]
+                     for w in part_warnings(lib.parts[pid], lib, own_only=True)]
+        warned = [w for pid in lib.parts if _under(lib.files[pid].path, root)
+                  for w in pin_set_warnings(lib.parts[pid], lib.files[pid])]
         # A part of the folder that does not load because of a file it extends.
         for pid, pf in lib.files.items():
             if pid in lib.parts or not _under(pf.path, root):
@@ -105,11 +107,13 @@ def run_check(args, load) -> int:
         once.setdefault((type(p), p.message), p)
     # by file, then line, then field: a file's problems in the order of its lines (a
     # problem of the whole file, with no line, first; one of no file last)
-    problems = sorted(once.values(), key=lambda p: (
+    problems, warned = (sorted(found, key=lambda p: (
         p.file is None, p.file or "", p.line or 0, p.field or ""))
+        for found in (once.values(), warned))
     if args.json:
         print(json.dumps({"checked": scope, "files": n_files,
                           "problems": [p.to_dict() for p in problems],
+                          "warnings": [w.to_dict() for w in warned],
                           "notes": [n.to_dict() for n in notes]},
                          indent=2, ensure_ascii=False))
     else:
@@ -117,10 +121,14 @@ def run_check(args, load) -> int:
 
         for p in problems:
             print(fitted(p.message))
+        for w in warned:
+            print(fitted(f"warning: {w.message}"))
         for note in notes:
             print(fitted(f"note: {note.message}"))
         n = len(problems)
         verdict = "no problems" if not n else f"{n} problem{plural_s(n)}"
+        if warned:
+            verdict += counted(", {n} warning{s}", len(warned))
         where = f", {scope}" if one is not None else f" in {scope}"
         print(fitted(f"checked {n_files} file{plural_s(n_files)}{where}: {verdict}"))
     return 1 if problems else 0
