@@ -532,7 +532,8 @@ def test_new_without_a_source_writes_none_and_check_lists_it(lib, capsys):
     assert code == 1
     assert f"team/x1.toml:{line}, field 'provenance.source'" in out
     assert "basis 'datasheet' but no source" in out
-    assert out.splitlines()[-1] == "checked 2 files in team: 1 problem"
+    # and the warnings of the fixture's SDA pins (open-drain, no v_ol and i_ol)
+    assert out.splitlines()[-1] == "checked 2 files in team: 1 problem, 2 warnings"
     code, _, err = run(capsys, "parts", "new", "x2", "--from", "base", "--into", "team",
                        "--source", "rev A")
     assert code == 0 and "no --source" not in err
@@ -927,3 +928,99 @@ def test_new_names_a_field_the_class_has_as_the_next_step(tmp_path, monkeypatch,
         code, out, err = run(capsys, "parts", "record", "x-part", field, "60 pF/m",
                              "--source", "invented rev A", "--library", str(tmp_path))
         assert code == 0, err
+
+
+def test_check_lists_what_the_first_problems_of_a_part_hide(lib, capsys):
+    # The checks between fields ran only once every field read: v_il above v_ih, and a
+    # fast corner on an open-drain pin, were reported only after the bare number, the
+    # unit and the value table without 'value' were fixed.
+    _, team = lib
+    # invented test inputs: each line below one problem
+    (team / "a.toml").write_text(textwrap.dedent("""\
+        format = "pinlib.part/1"
+        id = "t-a"
+        title = "a"
+        category = "sensor"
+        extends = "base"
+        [pins.sda]
+        c_in = 8
+        v_il = "0.8 VDD"
+        v_ih = "0.7 VDD"
+        [timing]
+        f_max = "1 mhz"
+        """), encoding="utf-8")
+    (team / "b.toml").write_text(textwrap.dedent("""\
+        format = "pinlib.part/1"
+        id = "t-b"
+        title = "b"
+        category = "sensor"
+        extends = "base"
+        [pins.sda]
+        c_in = { source = "datasheet rev A, table 5" }
+        fast = { r_out = "10 Ω" }
+        """), encoding="utf-8")
+    code, out, _ = run(capsys, "parts", "check", "team")
+    found = [x.split("':")[0] + "'" for x in out.splitlines() if x.startswith("team/")]
+    assert code == 1
+    assert found == ["team/a.toml:7, field 'pins.sda.c_in'",
+                     "team/a.toml:8, field 'pins.sda.v_il'",
+                     "team/a.toml:11, field 'timing.f_max'",
+                     "team/b.toml:7, field 'pins.sda.c_in'",
+                     "team/b.toml:8, field 'pins.sda.fast'"], out
+    assert "v_il 0.8 VDD lies above v_ih 0.7 VDD" in out
+    assert "a fast corner belongs to a push-pull output" in out
+    assert "note:" not in out  # every check ran on the fields that read
+
+
+def test_check_says_when_a_part_s_later_checks_cannot_run(lib, capsys):
+    # a field every part needs is missing: the checks of the part as a whole wait for it
+    _, team = lib
+    (team / "m.toml").write_text(textwrap.dedent("""\
+        format = "pinlib.part/1"
+        id = "t-m"
+        title = "m"
+        [pins.sda]
+        function = "i2c-sda"
+        c_in = 8
+        """), encoding="utf-8")
+    code, out, _ = run(capsys, "parts", "check", "team/m.toml")
+    assert code == 1
+    assert f"note: team/m.toml: {M.PART_CHECKS_WAIT}" in out, out
+    code, out, _ = run(capsys, "parts", "check", "team/m.toml", "--json")
+    notes = json.loads(out)["notes"]
+    assert [n["problem"] for n in notes] == [M.PART_CHECKS_WAIT]
+
+
+def test_check_lists_a_part_no_bus_can_take(lib, capsys):
+    # an SDA pin without SCL, an SPI pin without SCLK: the design loader refuses either
+    # part on its bus; an open-drain pin without its sink point.  Once "no problems".
+    _, team = lib
+    # invented test inputs
+    (team / "half.toml").write_text(textwrap.dedent("""\
+        format = "pinlib.part/1"
+        id = "half"
+        title = "half"
+        category = "sensor"
+        supply = { min = "1.7 V", max = "3.6 V" }
+        [pins.sda]
+        function = "i2c-sda"
+        drive = "open-drain"
+        c_in = "5 pF"
+        [pins.cs]
+        function = "spi-cs"
+        c_in = "5 pF"
+        """), encoding="utf-8")
+    code, out, _ = run(capsys, "parts", "check", "team/half.toml")
+    flat = " ".join(out.split())
+    assert code == 0  # warnings: the part is valid
+    assert ("warning: team/half.toml:6, field 'pins.sda': pins of i2c/smbus (i2c-sda) but no i2c-scl "
+            "pin: the part cannot be placed on such a bus; expected every device on such a "
+            "bus to have i2c-sda and i2c-scl") in flat, out
+    assert ("team/half.toml:10, field 'pins.cs': pins of spi (spi-cs) but no spi-sclk pin"
+            in flat), out
+    assert ("team/half.toml:6, field 'pins.sda': an open-drain pin without v_ol and i_ol"
+            in flat), out
+    assert out.splitlines()[-1] == "checked 1 file, team/half.toml: no problems, 3 warnings"
+    code, out, _ = run(capsys, "parts", "check", "team/half.toml", "--json")
+    got = json.loads(out)
+    assert code == 0 and not got["problems"] and len(got["warnings"]) == 3

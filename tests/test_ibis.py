@@ -460,3 +460,53 @@ def test_a_row_of_one_column_is_named_in_the_singular():
     with pytest.raises(LibraryError) as got:
         ibis.parse_ibis("\n".join(lines) + "\n", "invented.ibs")
     assert "1 column where 4 columns belong" in str(got.value), str(got.value)
+
+
+def test_a_refused_value_is_named_at_its_ibis_line_and_nothing_is_written(tmp_path, capsys):
+    # Once named the part file it would have written (…/demo-x.toml:14, field
+    # 'pins.sda.c_in'), which did not exist.
+    from pinlib.cli import main
+    # invented test input: C_comp written 3meg, which IBIS reads as 3 mF (m is milli)
+    text = ibis_text(model_type="Open_drain").replace("C_comp 3.0pF", "C_comp 3meg")
+    ibs = tmp_path / "invented.ibs"
+    ibs.write_text(text)
+    line = text.splitlines().index("C_comp 3meg 2.5pF 3.5pF") + 1
+    parts = tmp_path / "parts"
+    code = main(["parts", "import", str(ibs), "--component", "DEMO-IO", "--pin", "SDA=i2c-sda",
+                 "--pin", "SCL=i2c-scl", "--id", "demo-x", "--into", str(parts)])
+    err = capsys.readouterr().err
+    assert code == 2
+    assert f"{ibs}:{line}, field '[Model] io33, C_comp': outside the allowed range" in err
+    assert "expected at least 0 F and at most" in err and "pins.sda.c_in" in err
+    assert "demo-x.toml" not in err
+    assert not parts.exists()
+
+
+@pytest.mark.parametrize("how", [["--yes"], ["--pin", "SDA=i2c-sda"]])
+def test_writing_without_an_id_names_the_missing_option(how, tmp_path, capsys):
+    # Once, with --yes: the guess printed again with "add --yes", then "field '--id':
+    # not a pin mapping".
+    code, out, err = _import(tmp_path, capsys, "--component", "DEMO-IO", *how,
+                             "--into", str(tmp_path / "parts"))
+    assert code == 2
+    assert "field '--id': no --id given: the part to write needs an id" in err
+    assert "pin mapping" not in err and "add --yes" not in out
+    assert not (tmp_path / "parts").exists()
+
+
+def test_import_warns_of_a_part_no_bus_can_take_and_of_a_sink_without_data(tmp_path, capsys):
+    # The README's example mapped SDA alone, without --i-ol: the part was written and
+    # `parts check` said "no problems", yet no I2C bus could take it and its sink had
+    # no rating to be checked against; nothing said so.
+    parts = tmp_path / "parts"
+    code, out, err = _import(tmp_path, capsys, "--component", "DEMO-IO", "--pin",
+                             "SDA=i2c-sda", "--id", "demo-x", "--into", str(parts))
+    assert code == 0 and (parts / "demo-x.toml").exists()  # warnings, not a refusal
+    flat = " ".join(err.split())
+    assert "warning:" in flat and "field 'pins.sda': pins of i2c/smbus (i2c-sda) but no " \
+        "i2c-scl pin: the part cannot be placed on such a bus" in flat, err
+    assert "an open-drain pin without v_ol and i_ol" in flat and "--i-ol CURRENT" in flat
+    code, out, err = _import(tmp_path, capsys, "--component", "DEMO-IO", "--pin",
+                             "SDA=i2c-sda", "--pin", "SCL=i2c-scl", "--id", "demo-y",
+                             "--into", str(parts), "--i-ol", "3mA")
+    assert code == 0 and "warning:" not in err, err

@@ -2287,6 +2287,61 @@ def _(env):
     return next(p["message"] for p in problems if p["file"].endswith("child.toml"))
 
 
+def _half_part(env):
+    # invented test input: an open-drain SDA pin alone, no SCL, no sink point
+    path = env.write("team/half.toml", 'format = "pinlib.part/1"\nid = "half"\n'
+                     'title = "half"\ncategory = "sensor"\n'
+                     'supply = { min = "1.7 V", max = "3.6 V" }\n[pins.sda]\n'
+                     'function = "i2c-sda"\ndrive = "open-drain"\nc_in = "5 pF"\n')
+    code = main(["parts", "check", str(path), "--json"])
+    assert code == 0  # warnings: the part is valid
+    return json.loads(env.capsys.readouterr().out)["warnings"]
+
+
+@case("PIN_SET_INCOMPLETE", M.PIN_SET_INCOMPLETE.format(protocols="i2c/smbus",
+                                                        have="i2c-sda", lack="i2c-scl"))
+def _(env):
+    return _half_part(env)[0]["message"]
+
+
+@case("PIN_SET_RULE", M.PIN_SET_RULE.format(needs="i2c-sda and i2c-scl"))
+def _(env):
+    return _half_part(env)[0]["message"]
+
+
+@case("OPEN_DRAIN_NO_SINK_POINT", M.OPEN_DRAIN_NO_SINK_POINT.format(missing="v_ol and i_ol"))
+def _(env):
+    return _half_part(env)[1]["message"]
+
+
+@case("SINK_POINT_RULE")
+def _(env):
+    return _half_part(env)[1]["message"]
+
+
+@case("IBIS_GIVE_I_OL")
+def _(env):
+    from tests.test_ibis import ibis_text
+    ibs = env.write("m.ibs", ibis_text(model_type="Open_drain"))
+    # no --i-ol: the open-drain pins get no v_ol, and the warning says how to read one
+    code = main(["parts", "import", str(ibs), "--component", "DEMO-IO", "--pin",
+                 "SDA=i2c-sda", "--pin", "SCL=i2c-scl", "--id", "x", "--into",
+                 str(env.tmp / "parts")])
+    err = env.capsys.readouterr().err
+    assert code == 0, err
+    return " ".join(err.split())
+
+
+@case("PART_CHECKS_WAIT")
+def _(env):
+    # invented test input: no category (a field every part needs) and a bare number
+    path = env.write("team/m.toml", 'format = "pinlib.part/1"\nid = "m"\ntitle = "m"\n'
+                     '[pins.sda]\nfunction = "i2c-sda"\nc_in = 8\n')
+    code = main(["parts", "check", str(path), "--json"])
+    assert code == 1
+    return json.loads(env.capsys.readouterr().out)["notes"][0]["message"]
+
+
 @case("FIRST_PROBLEM", lambda: M.FIRST_PROBLEM.format(message=""))
 def _(env):
     env.write("team/broken.toml", "this is not TOML\n")
@@ -3974,6 +4029,23 @@ def _(env):
     ibs = env.write("m.ibs", ibis_text())
     return env.cli("parts", "import", str(ibs), "--component", "DEMO-IO", "--pin", "SDA",
                    "--id", "x", "--into", str(env.tmp / "parts"))
+
+
+@case("IMPORT_NEEDS_ID")
+def _(env):
+    from tests.test_ibis import ibis_text
+    ibs = env.write("m.ibs", ibis_text())
+    return env.cli("parts", "import", str(ibs), "--component", "DEMO-IO", "--yes",
+                   "--into", str(env.tmp / "parts"))
+
+
+@case("IBIS_VALUE_WOULD_BE", M.IBIS_VALUE_WOULD_BE.format(field="pins.sda.c_in"))
+def _(env):
+    from tests.test_ibis import ibis_text
+    # invented test input: C_comp written 3meg, which IBIS reads as 3 mF
+    ibs = env.write("m.ibs", ibis_text().replace("C_comp 3.0pF", "C_comp 3meg"))
+    return env.cli("parts", "import", str(ibs), "--component", "DEMO-IO", "--pin",
+                   "SDA=i2c-sda", "--id", "x", "--into", str(env.tmp / "parts"))
 
 
 @pytest.mark.parametrize(("name", "expected", "trigger"), CASES)

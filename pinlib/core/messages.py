@@ -333,6 +333,16 @@ ROUTE_DEVICE_OF_OTHER_BUS = "the point names a device of another bus, not of thi
 # ---------------------------------------------------------------- pinlib/cli/commands/
 NO_FOLDER_FOR_NEW_PART = "no folder to write the new part into"
 PART_DOES_NOT_LOAD = "the part does not load"
+PIN_SET_INCOMPLETE = ("pins of {protocols} ({have}) but no {lack} pin: the part cannot be "
+                      "placed on such a bus")
+PIN_SET_RULE = "every device on such a bus to have {needs}"
+OPEN_DRAIN_NO_SINK_POINT = ("an open-drain pin without {missing}: its low level and sink "
+                            "current are checked against no rating of the part (an I2C "
+                            "or SMBus bus takes the specification's sink point instead)")
+SINK_POINT_RULE = "v_ol and i_ol, the datasheet's low level at a sink current"
+IBIS_GIVE_I_OL = "--i-ol CURRENT reads v_ol from the model's [Pulldown] table at that current"
+PART_CHECKS_WAIT = ("some checks of this part (between its fields, of the part as a whole) "
+                    "could not run: they need the problems listed for it fixed first")
 LIBRARY_HAS_PROBLEMS = ("{n} problem{s} in the library (run 'pinlib parts check'); parts "
                         "with problems are left out")
 FIRST_PROBLEM = "the first: {message}"
@@ -704,6 +714,8 @@ IBIS_UNKNOWN_COMPONENT = "no such component in the file"
 IBIS_PIN_MAPPING = "not a pin mapping"
 IBIS_CURRENT_OUTSIDE_TABLE = "the table does not reach this current"
 IBIS_NO_SLOPE = "too few rows near the rail to take the table's slope"
+IBIS_VALUE_WOULD_BE = "the part's {field} would be this; nothing was written"
+IMPORT_NEEDS_ID = "no --id given: the part to write needs an id"
 IBIS_NO_GUESS = "no signal name of [Component] {component} suggests a pin function"
 IBIS_FIT_POOR = ("pin {pin}, {edge} ({corner}): the driver model misses the waveforms by "
                  "{residual} of the swing (RMS), more than {limit} (common practice, no "
@@ -720,6 +732,7 @@ MODULES = (
     "pinlib.library.fields",
     "pinlib.library.folders",
     "pinlib.library.plausible",
+    "pinlib.library.pinsets",
     "pinlib.library.sources",
     "pinlib.library.record",
     "pinlib.library.ibis",

@@ -51,6 +51,9 @@ class Protocol:
     other_signals : str or None
         The pin function of a signal the table does not name (a GPIO bus names its lines
         freely); None when only the named signals exist.
+    device_needs : tuple of str
+        The pin functions every device on such a bus has (the design loader refuses a
+        part without one): an I2C device SDA and SCL, an SPI peripheral SCLK.
     """
 
     name: str
@@ -58,6 +61,7 @@ class Protocol:
     engine: str
     signals: tuple[tuple[str, str], ...]
     other_signals: str | None = None
+    device_needs: tuple[str, ...] = ()
 
     @property
     def open_drain(self) -> bool:
@@ -87,9 +91,12 @@ _SPI_SIGNALS = (("sclk", "spi-sclk"), ("copi", "spi-copi"), ("cipo", "spi-cipo")
 
 #: Every protocol, by name, in the order the design format lists them.
 PROTOCOLS: dict[str, Protocol] = {p.name: p for p in (
-    Protocol("i2c", OPEN_DRAIN, "pinlib.engines.opendrain", _I2C_SIGNALS),
-    Protocol("smbus", OPEN_DRAIN, "pinlib.engines.opendrain", _I2C_SIGNALS),
-    Protocol("spi", PUSH_PULL, "pinlib.engines.pushpull", _SPI_SIGNALS),
+    Protocol("i2c", OPEN_DRAIN, "pinlib.engines.opendrain", _I2C_SIGNALS,
+             device_needs=("i2c-sda", "i2c-scl")),
+    Protocol("smbus", OPEN_DRAIN, "pinlib.engines.opendrain", _I2C_SIGNALS,
+             device_needs=("i2c-sda", "i2c-scl")),
+    Protocol("spi", PUSH_PULL, "pinlib.engines.pushpull", _SPI_SIGNALS,
+             device_needs=("spi-sclk",)),
     Protocol("gpio", PUSH_PULL, "pinlib.engines.pushpull", (), other_signals="gpio"),
 )}
 

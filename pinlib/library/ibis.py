@@ -129,6 +129,8 @@ class Model:
     name: str
     line: int
     params: dict[str, object] = field(default_factory=dict)
+    #: the line of each parameter in ``params``, by the same key
+    lines: dict[str, int] = field(default_factory=dict)
     voltage_range: TypMinMax | None = None
     #: ``[Pullup Reference]``, ``[Pulldown Reference]``... by key ("pullup reference"),
     #: which may stand in for ``[Voltage Range]``
@@ -393,6 +395,7 @@ def _model_params(model: Model, sec: _Section, where: _Where) -> None:
         key = name.lower()
         if key not in _MODEL_PARAMS:
             continue  # a parameter pinlib does not use (Vinl+, Cref_rising, ...)
+        model.lines[key] = line
         if key in ("model_type", "polarity", "enable"):
             model.params[key] = rest.split()[0] if rest.split() else ""
         elif key == "c_comp":
@@ -418,8 +421,10 @@ def _model_keyword(model: Model, sec: _Section, where: _Where) -> None:
     if sec.keyword in ("voltage range", "temperature range"):
         value = where.tmm(sec.arg.split(), sec.line, sec.name)
         setattr(model, sec.keyword.replace(" ", "_"), value)
+        model.lines[sec.keyword] = sec.line
     elif sec.keyword in _REFERENCES:
         model.references[sec.keyword] = where.tmm(sec.arg.split(), sec.line, sec.name)
+        model.lines[sec.keyword] = sec.line
     elif sec.keyword in _TABLES:
         model.tables[_TABLES[sec.keyword]] = _table(sec, where)
     elif sec.keyword == "ramp":

@@ -37,7 +37,9 @@ _CORNERS = ("typ", "min", "max")
 
 @value_class(frozen=True)
 class Derived:
-    """One value for a part file: SI value, unit, typical value, source and method."""
+    """One value for a part file: SI value, unit, typical value, source and method, and
+    where in the IBIS file it was read (``line`` and ``keyword``, e.g. ``[Model] io33,
+    C_comp``: what a value the part format refuses is named by)."""
 
     field: str
     value: float
@@ -45,6 +47,8 @@ class Derived:
     source: str
     method: str
     typ: float | None = None
+    line: int | None = None
+    keyword: str | None = None
 
 
 def _source(ibis: IbisFile, model: Model | None, corner: str) -> str:
@@ -77,7 +81,9 @@ def c_in(ibis: IbisFile, comp: Component, pin: Pin, model: Model) -> Derived:
     else:
         pin_c, pin_typ, what = 0.0, 0.0, "no package capacitance given"
     return Derived("c_in", comp_c + pin_c, "F", _source(ibis, model, f"C_comp {corner}"),
-                   f"C_comp ({corner}) + {what}", typ=cc.typ + pin_typ)
+                   f"C_comp ({corner}) + {what}", typ=cc.typ + pin_typ,
+                   line=model.lines.get("c_comp", model.line),
+                   keyword=f"[Model] {model.name}, C_comp")
 
 
 def thresholds(ibis: IbisFile, model: Model) -> list[Derived]:
@@ -86,7 +92,9 @@ def thresholds(ibis: IbisFile, model: Model) -> list[Derived]:
         if key in model.params:
             name = "Vinl" if key == "vinl" else "Vinh"
             out.append(Derived(fld, float(model.params[key]), "V",
-                               _source(ibis, model, name), f"{name} as stated"))
+                               _source(ibis, model, name), f"{name} as stated",
+                               line=model.lines.get(key, model.line),
+                               keyword=f"[Model] {model.name}, {name}"))
     return out
 
 
@@ -117,7 +125,8 @@ def sink_v_ol(ibis: IbisFile, model: Model, i_ol: float) -> Derived:
     typ = next((x for x, c in found if c == "typ"), None)
     return Derived("v_ol", v, "V", _source(ibis, model, f"[Pulldown] {corner}"),
                    "the [Pulldown] table read at i_ol (straight line between rows), "
-                   "the highest voltage of its corners", typ=typ)
+                   "the highest voltage of its corners", typ=typ, line=table.line,
+                   keyword=f"[Model] {model.name}, {table.keyword}")
 
 
 def _table(ibis: IbisFile, model: Model, key: str) -> Table:
@@ -156,10 +165,13 @@ def r_out(ibis: IbisFile, model: Model) -> Derived:
         raise _error(ibis, M.IBIS_NO_SLOPE, table.line, table.keyword, None,
                      f"two rows or more between 0 V and {NEAR_RAIL:g} of the supply")
     r, corner = max(found)
+    table = model.tables["pullup" if corner.startswith("[Pullup]") else "pulldown"]
     return Derived("r_out", r, "Ω", _source(ibis, model, corner),
                    f"slope dV/dI of the table rows within {NEAR_RAIL:.0%} of the supply "
                    "from the rail (least squares through the origin), the largest of "
-                   "the tables and corners", typ=max(typ) if typ else None)
+                   "the tables and corners", typ=max(typ) if typ else None,
+                   line=table.line, keyword=f"[Model] {model.name}, {table.keyword}")
+
 
 
 def derive_pin(ibis: IbisFile, component: str, pin_name: str, *,

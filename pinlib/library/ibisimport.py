@@ -18,16 +18,19 @@ from pinlib.core import messages as M
 from pinlib.core.errors import LibraryError
 from pinlib.core.protocols import PIN_FUNCTIONS, PROTOCOLS
 from pinlib.core.quantity import format_si
-from pinlib.core.tomlfile import toml_key
+from pinlib.core.tomlfile import toml_key, tomllib
 from pinlib.core.valueclass import value_class
 from pinlib.library import loader
 from pinlib.library.ibis import IbisFile
 from pinlib.library.ibisderive import Derived, _model_of, derive_pin
+from pinlib.library.pinsets import pin_set_warnings
 from pinlib.library.record import (
     _check_id,
     _comment,
     _refuse_builtin,
     _toml_string,
+    _validate,
+    _within,
     team_folder,
     write_new_part,
 )
@@ -87,13 +90,16 @@ def _drive(ibis: IbisFile, component: str, pin: str, function: str) -> str:
 def part_text(ibis: IbisFile, component: str, pins: dict[str, str], new_id: str, *,
               category: str = "logic", extends: str | None = None,
               i_ol: float | None = None, outputs: Outputs | None = None,
-              warnings: list | None = None) -> str:
+              warnings: list | None = None, origins: dict | None = None) -> str:
     """The TOML text of the part: ``pins`` maps an IBIS pin (name or signal) to a function.
 
     ``outputs`` works out a push-pull pin's slow and fast corners as edge points; where
     it gives them they replace the ``r_out`` of the pull-up and pull-down tables (the
     engine fits its driver to the edges).  Its warnings are appended to ``warnings``.
+    ``origins`` is filled with where each field of the part was read: a field path
+    (``pins.sda.c_in``, ``pins.sda``, ``supply``) -> ``(file, line, keyword)``.
     """
+    origins = {} if origins is None else origins
     if component not in ibis.components:
         raise LibraryError(M.IBIS_UNKNOWN_COMPONENT, file=ibis.path, field="--component",
                            value=component, expected="one of " + ", ".join(ibis.components))
@@ -113,6 +119,7 @@ def part_text(ibis: IbisFile, component: str, pins: dict[str, str], new_id: str,
         lines.append(f"extends = {_toml_string(extends)}")
     lines.append(f"provenance = {{ basis = \"ibis\", source = {_toml_string(source)}, "
                  f"recorded = {_dt.date.today().isoformat()} }}")
+    origins[""] = (ibis.path, ibis.components[component].line, f"[Component] {component}")
     body, supply, used = [], None, set()
     for pin, function in pins.items():
         if function not in PIN_FUNCTIONS:
@@ -141,6 +148,11 @@ def part_text(ibis: IbisFile, component: str, pins: dict[str, str], new_id: str,
             key = pin.lower()
         used.add(key)
         head = f"pins.{toml_key(key)}"
+        model_here = _model_of(ibis, _entry(ibis, component, pin))
+        origins[f"pins.{key}"] = (ibis.path, model_here.line, f"[Model] {model_here.name}")
+        for f, d in values.items():
+            origins[f"pins.{key}.{f}"] = ((None, None, "--i-ol") if f == "i_ol" else
+                                         (ibis.path, d.line, d.keyword))
         body += ["", f"[{head}]", f"function = {_toml_string(function)}",
                  f"drive = {_toml_string(drive)}"]
         body += [f"{f} = {_value(values[f])}" for f in _ORDER if f in values]
@@ -150,6 +162,9 @@ def part_text(ibis: IbisFile, component: str, pins: dict[str, str], new_id: str,
                 body += ["", f"[{head}.fast]"] + _edges_lines(corners.fast)
     model, vr = supply
     lines.append(_supply_line(ibis, model, vr))
+    where = "voltage range" if model.voltage_range is not None else "pullup reference"
+    origins["supply"] = (ibis.path, model.lines.get(where, model.line),
+                         f"[Model] {model.name}, [{where.title()}]")
     body += _timing_lines(ibis, component, pins)
     return "\n".join(lines + body) + "\n"
 
@@ -234,7 +249,32 @@ def import_part(library: loader.Library, ibis: IbisFile, component: str,
                            hint="choose another id with --id")
     _refuse_builtin(Path(into_folder), "an imported part belongs in a team folder",
                     "name a team library folder with --into")
-    text = part_text(ibis, component, pins, new_id, **kw)
+    origins: dict = {}
+    text = part_text(ibis, component, pins, new_id, origins=origins, **kw)
+    target = Path(into_folder) / f"{new_id}.toml"
+    try:  # before the folder is made: a refused part leaves nothing behind
+        part = _validate(library, new_id, target, text)
+    except LibraryError as err:
+        raise _in_ibis(err, str(target), origins) from None
     folder = team_folder(into_folder, "an imported part belongs in a team folder")
-    target = folder / f"{new_id}.toml"
-    return write_new_part(library, new_id, target, text)
+    path = write_new_part(library, new_id, folder / f"{new_id}.toml", text)
+    if kw.get("warnings") is not None:  # what the part lacks to be of use on a bus
+        pf = loader.PartFile(path, tomllib.loads(text), text, False)
+        for w in pin_set_warnings(part, pf):
+            sink = w.expected == M.SINK_POINT_RULE
+            kw["warnings"].append((w.with_hint(M.IBIS_GIVE_I_OL) if sink else w).message)
+    return path
+
+
+def _in_ibis(err: LibraryError, target: str, origins: dict) -> LibraryError:
+    """A problem of the part text (in ``target``, never written) named where its value
+    was read: the IBIS file's line and keyword (``--i-ol`` for the current given), the
+    part's field said in the hint; a problem of another file is kept as it is."""
+    if err.file != target or err.field is None:
+        return err
+    key = max((k for k in origins if not k or _within(err.field, k)), key=len)
+    file, line, keyword = origins[key]
+    said = M.IBIS_VALUE_WOULD_BE.format(field=err.field)
+    return LibraryError(err.problem, file=file, line=line, field=keyword, value=err.value,
+                        expected=err.expected,
+                        hint=f"{err.hint}; {said}" if err.hint else said)

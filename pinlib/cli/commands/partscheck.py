@@ -8,7 +8,7 @@ from pathlib import Path
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
-from pinlib.core.labels import plural_s
+from pinlib.core.labels import counted, plural_s
 from pinlib.present.terminal import shown_path as _rel
 
 
@@ -26,10 +26,29 @@ def _under(path, root: tuple[Path, Path]) -> bool:
     return any(p == r or p.is_relative_to(r) for p in _places(path) for r in root)
 
 
+def _beyond_first(lib, problems: list, root) -> tuple[list, list]:
+    """``problems`` with those the first ones hid (:mod:`pinlib.library.further`) of each
+    part that does not load, in ``root`` (None: the whole library); and a note for
+    each part some of whose checks could not run."""
+    from pinlib.core.errors import LibraryError
+    from pinlib.library.further import further_problems
+
+    notes, out = [], list(problems)
+    for pid, pf in lib.files.items():
+        if pid in lib.parts or (root is not None and not _under(pf.path, root)):
+            continue
+        found, blocked = further_problems(pid, lib.files)
+        out += [p for p in found if root is None or (p.file and _under(p.file, root))]
+        if blocked:
+            notes.append(LibraryError(M.PART_CHECKS_WAIT, file=str(pf.path)))
+    return out, notes
+
+
 def run_check(args, load) -> int:
     """`pinlib parts check [FOLDER]`: every problem of the part files (``load(args,
     extra)`` gives the library); exit 1 when one is found."""
     from pinlib.core.errors import LibraryError
+    from pinlib.library.pinsets import pin_set_warnings
     from pinlib.library.plausible import part_warnings
     from pinlib.library.sources import unsourced
 
@@ -40,9 +59,12 @@ def run_check(args, load) -> int:
         problems = list(lib.problems)
         for pid in lib.parts:  # implausible values, each listed with the file that set it
             problems += part_warnings(lib.parts[pid], lib, own_only=True)
+        warned = [w for pid in lib.parts for w in pin_set_warnings(lib.parts[pid],
+                                                                   lib.files[pid])]
         for pf in lib.files.values():  # a datasheet or measured basis without its source
             problems += unsourced(pf)
         scope = "the library"
+        root = None
         n_files = len(lib.files)
     else:
         folder = Path(args.folder)
@@ -58,6 +80,8 @@ def run_check(args, load) -> int:
         problems = [p for p in lib.problems if p.file and _under(p.file, root)]
         problems += [w for pid in lib.parts if _under(lib.files[pid].path, root)
                      for w in part_warnings(lib.parts[pid], lib, own_only=True)]
+        warned = [w for pid in lib.parts if _under(lib.files[pid].path, root)
+                  for w in pin_set_warnings(lib.parts[pid], lib.files[pid])]
         # A part of the folder that does not load because of a file it extends.
         for pid, pf in lib.files.items():
             if pid in lib.parts or not _under(pf.path, root):
@@ -75,6 +99,7 @@ def run_check(args, load) -> int:
 
         n_files = 1 if one is not None else len(part_paths(folder)[0])  # as the walk read
         scope = _rel(one or folder)
+    problems, notes = _beyond_first(lib, problems, root)
     # A problem of a class is a problem of every part that extends it, each failing
     # with the same error at the class's line: listed once.
     once: dict = {}
@@ -82,19 +107,28 @@ def run_check(args, load) -> int:
         once.setdefault((type(p), p.message), p)
     # by file, then line, then field: a file's problems in the order of its lines (a
     # problem of the whole file, with no line, first; one of no file last)
-    problems = sorted(once.values(), key=lambda p: (
+    problems, warned = (sorted(found, key=lambda p: (
         p.file is None, p.file or "", p.line or 0, p.field or ""))
+        for found in (once.values(), warned))
     if args.json:
         print(json.dumps({"checked": scope, "files": n_files,
-                          "problems": [p.to_dict() for p in problems]},
+                          "problems": [p.to_dict() for p in problems],
+                          "warnings": [w.to_dict() for w in warned],
+                          "notes": [n.to_dict() for n in notes]},
                          indent=2, ensure_ascii=False))
     else:
         from pinlib.present.terminal import fitted
 
         for p in problems:
             print(fitted(p.message))
+        for w in warned:
+            print(fitted(f"warning: {w.message}"))
+        for note in notes:
+            print(fitted(f"note: {note.message}"))
         n = len(problems)
         verdict = "no problems" if not n else f"{n} problem{plural_s(n)}"
+        if warned:
+            verdict += counted(", {n} warning{s}", len(warned))
         where = f", {scope}" if one is not None else f" in {scope}"
         print(fitted(f"checked {n_files} file{plural_s(n_files)}{where}: {verdict}"))
     return 1 if problems else 0

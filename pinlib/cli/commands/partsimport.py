@@ -119,14 +119,13 @@ def run_import(args, load_library, default_folder) -> int:
         _listing(ibis)
         return 0
     pins = _mapping(args.pin)
+    if (pins or args.yes) and not args.part_id:  # a part is to be written: it needs an id
+        raise InputError(M.IMPORT_NEEDS_ID, field="--id",
+                         expected="--id ID, the new part's id (e.g. --id x-i2c)")
     if not pins:
         pins = _guess(ibis, args.component, args.file, args.part_id, args.into)
         if not args.yes:
             return 0
-    if not pins or not args.part_id:
-        raise InputError(M.IBIS_PIN_MAPPING, field="--pin" if not pins else "--id",
-                         expected="--component NAME with --pin PIN=FUNCTION (one or more) "
-                                  "and --id ID")
     i_ol = None if args.i_ol is None else parse(args.i_ol, "A", field="--i-ol")
     folder = Path(args.into) if args.into else default_folder(args)
     lib = load_library(args)

@@ -108,7 +108,7 @@ def _check_open_drain_pins(rb: RawBus, segments: list[Segment], err) -> None:
                           expected='side = "a" or "b"')
             if not d.is_bridge and side is not None:
                 raise err(M.SIDE_ONLY_FOR_BRIDGE, d.loc + ("side",), value=side)
-            for fn in protocols.protocol(rb.protocol).functions:
+            for fn in protocols.protocol(rb.protocol).device_needs:
                 if d.part.pin_for(fn, side) is None:
                     raise err(M.PART_LACKS_PIN_ON_SIDE.format(function=fn, side=side) if side
                               else M.PART_LACKS_PIN.format(function=fn),
@@ -267,8 +267,9 @@ def _push_pull_bus(rb: RawBus, bloc, device, sections, err, homes=None) -> Bus:
                       expected="clock = \"25 MHz\"")
         for d in devices:
             # a controller drives the clock, data out and select; a peripheral needs the clock
-            driven = ("sclk", "copi", "cs") if d.is_controller else ("sclk",)
-            for fn in (SIGNAL_FUNCTION[sig] for sig in driven):
+            needs = (tuple(SIGNAL_FUNCTION[sig] for sig in ("sclk", "copi", "cs"))
+                     if d.is_controller else protocols.protocol("spi").device_needs)
+            for fn in needs:
                 if d.part.pin_for(fn, d.side) is None and not d.is_bridge:
                     raise err(M.PART_LACKS_PIN.format(function=fn), d.loc + ("part",),
                               value=d.part_id)
