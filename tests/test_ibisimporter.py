@@ -73,3 +73,14 @@ def test_an_empty_file_box_asks_for_a_path(tmp_path):
         assert panel.ibis is None and "a file name is needed" in panel.message.value, \
             panel.message.value
         assert "directory" not in panel.message.value
+
+
+def test_write_shows_what_the_part_lacks_to_stand_on_a_bus(tmp_path, ibs):
+    # the command warned of an SDA pin without SCL after the import; the panel's Write
+    # showed only "created": the same warnings now follow it (invented model, SDA only)
+    panel = IbisImporter(tmp_path / "team").set(file=str(ibs), component="DEMO-IO",
+                                                id="demo-sda", category="memory")
+    panel.set(pins={"SDA": "i2c-sda", "SCL": None})
+    assert panel.write() == tmp_path / "team" / "demo-sda.toml"
+    shown = panel.message.value
+    assert "created" in shown and "warning:" in shown and "i2c-scl" in shown

@@ -214,16 +214,19 @@ class IbisImporter(_Panel):
 
         if self.preview() is None:
             return None
+        written: list[str] = []  # what the part lacks to be of use on a bus
         try:
             folders = self.library_folders + ([self.folder] if self.folder.is_dir() else [])
             path = import_part(load_library(folders), self.ibis, self.component.value,
                                self.mapping(), self.new_id.value.strip(), self.folder,
-                               **self._arguments())
+                               warnings=written, **self._arguments())
         except PinlibError as err:
             self.message.value = error_html(err)
             return None
         self.written = path
-        self.message.value = block(f"created <code>{e(path)}</code>")
+        self.warnings = [w for w in written if w not in self.warnings] + self.warnings
+        self.message.value = block(f"created <code>{e(path)}</code>") + "".join(
+            block(f"warning: {e(w)}") for w in self.warnings)
         return path
 
     def update(self) -> None:
