@@ -506,8 +506,8 @@ SPI_MODE_NOT_0_TO_3 = "an SPI mode is a whole number from 0 to 3 (CPOL·2 + CPHA
 #: The heading of an SPI bus's flights in ``pinlib check --detail``.
 FLIGHTS_HEAD = ("flights: from the driver's timing reference (its output at 50 % of its "
                 "supply into its test load) to the receiver's VIL(max) or VIH(min), "
-                "earliest and latest, as the timing checks above take them (— for an "
-                "end no check takes)")
+                "earliest and latest, as the timing checks above take them (—: no "
+                "check takes that end, or the receiver never crosses its threshold)")
 #: Why a candidate's worst margin is "—" where a yes/no check (power-off, a supported SPI
 #: mode) sets its status.
 WORST_YES_NO = "a yes/no check, which has no margin, sets the status"
