@@ -538,6 +538,16 @@ def test_detail_lists_each_peripherals_flights_from_its_budget(tmp_path):
     text = detail_lines(check_design(design), 80)
     assert any(ln.strip().startswith("flights: from the driver's timing") for ln in text)
     assert all(len(ln) <= 80 for ln in text)
+    # the reports show the same rows: a table of their own in HTML and in Markdown
+    from pinlib.present import review
+
+    result = check_design(design)
+    page = review.render_html(design, result)
+    md = review.render_markdown(design, result)
+    for ref, label, early, late in flight_rows(bus):
+        assert (f"<tr><td>{ref}</td><td>{label}</td><td class=\"num\">{early}</td>"
+                f"<td class=\"num\">{late}</td></tr>") in page
+        assert f"| {ref} | {label} | {early} | {late} |" in md
 
 
 def test_max_clock_follows_the_worst_device_and_names_it(tmp_path):

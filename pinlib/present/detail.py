@@ -18,7 +18,14 @@ from pinlib.core.quantity import format_si
 from pinlib.core.wrapping import NBSP, columns, glue, has_wide, ljust, wrap_wide
 from pinlib.model.result import CAUTION, BusResult, Group, margin_text
 from pinlib.present.terminal import status_word, wrap
-from pinlib.present.values import counts, figure_cells, format_value, with_fix
+from pinlib.present.values import (
+    FLIGHT_HEAD,
+    counts,
+    figure_cells,
+    flight_rows,
+    format_value,
+    with_fix,
+)
 
 __all__ = ["detail_lines", "table"]
 
@@ -85,49 +92,12 @@ def _checks(g: Group, indent: str, cols: int, sources: dict[str, int]) -> list[s
     return out
 
 
-#: An SPI peripheral's flights as its budget checks' ``details`` hold them (see
-#: :mod:`pinlib.engines.spi`): the row's label, then (check id, detail key) of the
-#: earliest and of the latest flight; None where no check takes that end.
-FLIGHTS = (
-    ("SCLK sampling edge", ("copi-setup", "sclk_early"), ("copi-hold", "sclk_late")),
-    ("SCLK launching edge", ("cipo-hold", "sclk_early"), ("cipo-setup", "sclk_late")),
-    ("COPI", ("copi-hold", "copi_early"), ("copi-setup", "copi_late")),
-    ("CIPO, back at the controller", ("cipo-hold", "cipo_early"), ("cipo-setup", "cipo_late")),
-    ("CS asserting", None, ("cs-setup", "cs_late")),
-    ("CS releasing", ("cs-hold", "cs_early"), None),
-)
-
-
-def flight_rows(bus: BusResult) -> list[list[str]]:
-    """Each SPI peripheral's flights, from its budget checks: ``[device, flight,
-    earliest, latest]`` rows, a row only where a check took one end of it ("—" for the
-    end no check takes, or a flight with no time)."""
-    got: dict[str, dict[str, dict]] = {}
-    for c in bus.checks:
-        if c.subject and isinstance(c.details, dict):
-            got.setdefault(c.subject, {})[c.id] = c.details
-    rows = []
-    for ref, checks in got.items():
-        for label, *ends in FLIGHTS:
-            cells = []
-            for end in ends:
-                value = None if end is None else checks.get(end[0], {}).get(end[1], False)
-                cells.append(value)
-            if all(v is False or v is None for v in cells) and \
-                    not any(end and end[0] in checks for end in ends):
-                continue
-            rows.append([ref, label] + [format_value(None if v is False else v, "s")
-                                        for v in cells])
-    return rows
-
-
 def _flights(b: BusResult, cols: int) -> list[str]:
     rows = flight_rows(b) if b.protocol == "spi" else []
     if not rows:
         return []
     out = wrap(M.FLIGHTS_HEAD, cols, "  ", "    ")
-    return out + table([["device", "flight", "earliest", "latest"], *rows], "    ", cols,
-                       flex=1)
+    return out + table([[h.lower() for h in FLIGHT_HEAD], *rows], "    ", cols, flex=1)
 
 
 def _group(g: Group, head: str, indent: str, cols: int, sources: dict) -> list[str]:

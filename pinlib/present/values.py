@@ -8,10 +8,10 @@ from collections.abc import Mapping
 
 from pinlib.core.labels import figure_label, shown_figures
 from pinlib.core.quantity import format_value
-from pinlib.model.result import Check, DesignResult, Figure, figure_text
+from pinlib.model.result import BusResult, Check, DesignResult, Figure, figure_text
 
 __all__ = ["format_value", "counts", "with_fix", "figure_cells", "SEARCH_BOUNDS",
-           "search_bound_words", "limit_side"]
+           "search_bound_words", "limit_side", "FLIGHTS", "FLIGHT_HEAD", "flight_rows"]
 
 #: Figures a search gives (a coupling's), with the figure of the search's own bound and
 #: the words a result at that bound takes: there the search found no end, so "18 µm"
@@ -99,3 +99,41 @@ def counts(result: DesignResult) -> dict[str, int]:
         for _, _, c in b.all_checks():
             out[c.status] = out.get(c.status, 0) + 1
     return out
+
+
+#: An SPI peripheral's flights as its budget checks' ``details`` hold them (see
+#: :mod:`pinlib.engines.spi`): the row's label, then (check id, detail key) of the
+#: earliest and of the latest flight; None where no check takes that end.
+FLIGHTS = (
+    ("SCLK sampling edge", ("copi-setup", "sclk_early"), ("copi-hold", "sclk_late")),
+    ("SCLK launching edge", ("cipo-hold", "sclk_early"), ("cipo-setup", "sclk_late")),
+    ("COPI", ("copi-hold", "copi_early"), ("copi-setup", "copi_late")),
+    ("CIPO, back at the controller", ("cipo-hold", "cipo_early"), ("cipo-setup", "cipo_late")),
+    ("CS asserting", None, ("cs-setup", "cs_late")),
+    ("CS releasing", ("cs-hold", "cs_early"), None),
+)
+
+
+#: The columns of :func:`flight_rows`.
+FLIGHT_HEAD = ("Device", "Flight", "Earliest", "Latest")
+
+
+def flight_rows(bus: BusResult) -> list[list[str]]:
+    """Each SPI peripheral's flights, from its budget checks' ``details``
+    (:data:`FLIGHTS`): ``[device, flight, earliest, latest]`` as text, a row where the
+    device has a check that takes one end of it; "—" for the end no check takes, or a
+    flight with no time (a receiver that never crosses its threshold).  The text of
+    ``pinlib check --detail`` and the reports show the same rows."""
+    got: dict[str, dict[str, dict]] = {}
+    for c in bus.checks:
+        if c.subject and isinstance(c.details, dict):
+            got.setdefault(c.subject, {})[c.id] = c.details
+    rows = []
+    for ref, checks in got.items():
+        for label, *ends in FLIGHTS:
+            if not any(end and end[0] in checks for end in ends):
+                continue
+            cells = [checks[end[0]].get(end[1]) if end and end[0] in checks else None
+                     for end in ends]
+            rows.append([ref, label, *(format_value(x, "s") for x in cells)])
+    return rows

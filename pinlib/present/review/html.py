@@ -27,6 +27,7 @@ from pinlib.present.review.text import (
     _bus_counts,
     _check_cells,
     _counts,
+    _flights_caption,
     _groups,
     _heading,
     _margin,
@@ -34,7 +35,7 @@ from pinlib.present.review.text import (
     _no_snapshot_text,
     _route_of,
 )
-from pinlib.present.values import figure_cells
+from pinlib.present.values import FLIGHT_HEAD, figure_cells, flight_rows
 
 _CSS = """\
 :root{--ink:#111;--muted:#4a4a4a;--rule:#c8c8c8;--head:#eef0f2}
@@ -190,6 +191,7 @@ class _Html:
         for head, suffix, grp, place in _groups(b):
             if head is None:
                 self.group(grp, place, f"{b.id}", level=3)
+                self.flights(b)
                 continue
             sid = anchor + suffix
             self.w(f'<section id="{sid}" aria-labelledby="h-{sid}">',
@@ -201,6 +203,19 @@ class _Html:
             self.group(grp, place, f"{b.id} {head.lower()}", level=4)
             self.w("</section>")
         self.w("</section>")
+
+    def flights(self, b: BusResult):
+        """An SPI bus's flights per peripheral (:func:`pinlib.present.values.flight_rows`)."""
+        rows = flight_rows(b) if b.protocol == "spi" else []
+        if not rows:
+            return
+        self.w("<h3>Flights</h3>", f'<p class="meta">{_e(_flights_caption())}</p>', _TABLE,
+               f'<caption class="visually-hidden">Flights of {_e(b.id)}</caption>',
+               "<thead><tr>" + "".join(f'<th scope="col">{x}</th>' for x in FLIGHT_HEAD)
+               + "</tr></thead><tbody>",
+               *[f"<tr><td>{_e(r[0])}</td><td>{_e(r[1])}</td><td class=\"num\">{_e(r[2])}"
+                 f"</td><td class=\"num\">{_e(r[3])}</td></tr>" for r in rows],
+               "</tbody></table></div>")
 
     def group(self, g: Group, place, label: str, level: int):
         h = f"h{level}"

@@ -29,13 +29,14 @@ from pinlib.present.review.text import (
     _bus_counts,
     _check_cells,
     _counts,
+    _flights_caption,
     _groups,
     _heading,
     _margin,
     _message,
     _route_of,
 )
-from pinlib.present.values import figure_cells
+from pinlib.present.values import FLIGHT_HEAD, figure_cells, flight_rows
 
 # Every user-written text (titles, ids, descriptions, sources, part values, paths) goes
 # through _mt: one line (newlines and runs of spaces become one space), the characters
@@ -236,6 +237,10 @@ class _Markdown:
         for head, _, grp, place in _groups(b):
             if head is None:
                 self.group(grp, place, "###")
+                rows = flight_rows(b) if b.protocol == "spi" else []
+                if rows:
+                    self.w("### Flights", "", *_wrapped(_mt(_flights_caption())), "")
+                    self.w(*_table(list(FLIGHT_HEAD), [[_m(x) for x in r] for r in rows]))
                 continue
             self.w(*_heading_lines("###", head, f": {_MARK[grp.status]}"))
             route = _route_of(design_bus, place)

@@ -175,6 +175,13 @@ def _indent(row: str) -> int:
     return len(row) - len(row.lstrip(" "))
 
 
+def _flights_caption() -> str:
+    """What an SPI bus's flights table holds, as a sentence (the text's heading, without
+    its ``flights:``)."""
+    text = M.FLIGHTS_HEAD.split(": ", 1)[1]
+    return text[0].upper() + text[1:] + "."
+
+
 def _route_of(design_bus, place) -> list[str]:
     """The route diagram of a line's place in the report (empty for anything else)."""
     if design_bus is None or place[0] != "line":
