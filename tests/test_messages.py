@@ -692,8 +692,9 @@ def _(env):
 
 @case("WORST_YES_NO")
 def _(env):
-    from pinlib.studies.candidates import rank_candidates
     from test_candidates import SWITCHED
+
+    from pinlib.studies.candidates import rank_candidates
 
     (env.tmp / "sw.toml").write_text(SWITCHED, encoding="utf-8")
     return rank_candidates(load_design(env.tmp / "sw.toml"), "U2").format_text(width=None)
