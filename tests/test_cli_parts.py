@@ -1014,8 +1014,8 @@ def test_check_lists_a_part_no_bus_can_take(lib, capsys):
     flat = " ".join(out.split())
     assert code == 0  # warnings: the part is valid
     assert ("warning: team/half.toml:6, field 'pins.sda': pins of i2c/smbus (i2c-sda) but "
-            "no i2c-scl pin: the part cannot be placed on such a bus; expected every device on such a "
-            "bus to have i2c-sda and i2c-scl") in flat, out
+            "no i2c-scl pin: the part cannot be placed on such a bus; expected every "
+            "device on such a bus to have i2c-sda and i2c-scl") in flat, out
     assert ("team/half.toml:10, field 'pins.cs': pins of spi (spi-cs) but no spi-sclk pin"
             in flat), out
     assert ("team/half.toml:6, field 'pins.sda': an open-drain pin without v_ol and i_ol"
