@@ -1436,3 +1436,53 @@ devices = [{devices}]
     assert ("SCL: pulled low only from beyond the segments next to this one, through two "
             "or more bridging parts in a row (U1)") in notes
     assert "not worked out here" in notes
+
+
+def test_a_sink_past_its_rating_holds_the_low_level_where_the_pull_up_carries_iol(tmp_path):
+    # invented design (a workbook's, 500 pF beside the trace): the pull-up "auto" cannot
+    # be sized and U2 (eeprom-i2c: VOL 0.4 V at IOL 3 mA) sinks against the 742 Ω chosen.
+    # The fall-time check said SDA never falls to VIL (the sink held to IOL above VOL),
+    # while the VOL figure read 527 mV from the same datasheet point taken as 133 Ω at
+    # 3.96 mA: now both take the one sink model, the line settling where the pull-up
+    # carries IOL
+    path = tmp_path / "d.toml"
+    path.write_text("""format = "pinlib.design/1"
+title = "sink past its rating (invented)"
+
+[board.geometry.trace]
+kind = "microstrip"
+width = "0.2 mm"
+height = "0.18 mm"
+thickness = "35 µm"
+er = 3
+
+[[bus]]
+id = "i2c"
+protocol = "i2c"
+mode = "fast"
+supply = "3.3 V"
+supply_tolerance = "5 %"
+pullup = "auto"
+pullup_tolerance = "1 %"
+trace = { length = "14 cm", geometry = "trace" }
+extra_capacitance = "500 pF"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "eeprom-i2c" },
+  { ref = "U3", part = "rtc-i2c" },
+  { ref = "U4", part = "io-expander-i2c" },
+]
+""", encoding="utf-8")
+    bus = check_design(load_design(path)).buses[0]
+    sink = next(c for c in bus.checks if c.id == "sink-current" and c.subject == "SDA U2")
+    vol = next(c for c in bus.checks if c.id == "v-ol" and c.subject.startswith("SDA"))
+    fall = next(c for c in bus.checks if c.id == "fall-time" and c.subject == "SDA")
+    assert sink.status == "fail" and fall.value is None  # the sink cannot carry the pull-up
+    rp = bus.figures["pullup"].value * 0.99  # at −1 %
+    vdd = 3.3 * 1.05  # the rail at its maximum, where the figure is the highest
+    # derived: the line settles where (VDD − V) / Rp = IOL, above VOL 0.4 V
+    want = vdd - 3e-3 * rp
+    assert want > 0.4
+    assert bus.figures["v_ol"].value == pytest.approx(want, rel=1e-9)
+    assert vol.status == "fail" and vol.value >= want * 0.94  # rail at its minimum there
+    assert "at most its IOL above its VOL" in vol.message

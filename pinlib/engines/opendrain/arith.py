@@ -46,6 +46,7 @@ def low_levels(v, rp_lo, drivers, far, segs, signal: str, phys=pu) -> tuple[list
         if not far:
             vb = np.asarray(phys.low_level(v, rp_lo, d.r_sink, d.r_series), dtype=float)
             i = np.asarray(phys.sink_current(v, rp_lo, d.r_sink, d.r_series), dtype=float)
+            g_far, v_far = 0.0, 0.0
         else:
             g = 0
             for link, _, rp in far:
@@ -55,12 +56,27 @@ def low_levels(v, rp_lo, drivers, far, segs, signal: str, phys=pu) -> tuple[list
                 v_th = v_th + vv / (rp + link.r_on)
             vb, _, i = (np.asarray(x, dtype=float) for x in pu.translator_low_levels(
                 v, rp_lo, v_th / g, 1.0 / g, 0.0, d.r_sink + d.r_series))
-        levels.append((vb, i, d, None))
+            g_far, v_far = g, v_th
+        levels.append((_guaranteed(vb, i, d.i_ol, v, rp_lo, g_far, v_far), i, d, None))
     for d, link, v_other, rp_other in far_drivers(far, segs, signal):
         _, vf, _ = pu.translator_low_levels(v_other, rp_other, v, rp_lo, link.r_on,
                                             d.r_sink + d.r_series)
         levels.append((np.asarray(vf, dtype=float), None, d, link))
     return levels, offset_levels
+
+
+def _guaranteed(vb, i, i_ol, v, rp_lo, g_far, v_far):
+    """The low level the sink guarantees: ``vb`` (its datasheet point read as a resistance)
+    where the current ``i`` stays within its ``i_ol``; beyond, the sink is held to that
+    constant current (:data:`pinlib.engines.opendrain.explain.SINK_MODEL`, as the fall
+    time takes it) and the line settles where the pull-ups (``rp_lo`` to ``v``, and
+    across a translator ``g_far`` [S] to ``v_far`` [A], their Norton current) carry
+    ``i_ol``. [V]"""
+    over = i > i_ol
+    if not np.any(over):
+        return vb
+    held = (v / rp_lo + v_far - i_ol) / (1.0 / rp_lo + g_far)
+    return np.where(over, np.maximum(held, vb), vb)
 
 
 #: What bounds a driver's fall time (the ``kind`` of :func:`fall_bounds`).

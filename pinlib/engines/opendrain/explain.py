@@ -157,8 +157,8 @@ FAR_BEYOND_CB = 10.0
 #: The one sink model of a line's checks, stated in the v-ol and fall-time details.
 SINK_MODEL = ("I ≥ min(V·IOL/VOL, IOL): the datasheet point (VOL at IOL) read as a "
                "resistance VOL/IOL below VOL and as a constant current above it; the v-ol "
-               "check uses the resistive part (valid while the sink current stays within IOL, "
-               "which sink-current checks), the fall-time bound both")
+               "check and the fall-time bound both use it: where the pull-ups draw more than "
+               "IOL the line settles where they carry IOL, above VOL")
 
 
 _WORST = {"bus_capacitance": max, "pullup": min, "rp_min": max, "rp_max": min, "rise_time": max,

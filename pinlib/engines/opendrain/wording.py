@@ -320,8 +320,8 @@ def _v_ol(w: Words, ln: LineInputs, far: list) -> None:
     failing = [ln.receivers[j].tap.label for m, j in rows if m < 0]
     by = bc.by_names[int(bc.by[0])]
     chk = make(bc, r.source, f"{up} low level {_f(bc.value[0], 'V')} (driver {by} at the actual "
-               f"current, {_CORNERS[c]}, incl. I·Rs) against VIL {_f(bc.limit[0], 'V')} of "
-               f"{r.tap.label}", subject=f"{up} {r.tap.label}",
+               f"current, at most its IOL above its VOL, {_CORNERS[c]}, incl. I·Rs) against "
+               f"VIL {_f(bc.limit[0], 'V')} of {r.tap.label}", subject=f"{up} {r.tap.label}",
                details={"receivers": {ln.receivers[j].tap.label: m for m, j in rows},
                         "sink_model": SINK_MODEL})
     _conditional_on_r_on(w, far, chk)
