@@ -489,6 +489,17 @@ def test_spaced_log_ticks_thin_out_as_the_axis_shortens():
         "0.5", "1", "20", "1000", "0.001"]
 
 
+def test_a_window_closed_at_every_cb_draws_no_band():
+    # invented inputs: no Rp(min) at all (no pull-up lets the sinks pull low: the
+    # pull-ups across a translator alone draw more than the weakest sink's IOL). The
+    # band's layer had no rows, and the renderer warned "Infinite extent for field cb"
+    cb = np.array([10, 100, 800]) * PICO
+    chart = charts.pullup_window(cb, np.inf, np.array([35.4, 3.54, 0.443]) * KILO,
+                                 chosen_cb=120 * PICO, chosen_rp=2200.0)
+    assert _marks(chart) == ["line", "point"]
+    assert "<svg" in charts.to_svg(chart, cache=False)
+
+
 def test_pullup_window_rp_min_as_array_and_bad_shapes():
     cb = np.array([10, 100]) * PICO
     chart = charts.pullup_window(cb, np.array([900.0, 1000.0]), np.array([30e3, 3e3]),

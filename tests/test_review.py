@@ -1426,3 +1426,13 @@ def test_the_crosstalk_caption_gives_a_minimum_at_the_search_end_as_a_bound(buil
     md, _ = built.markdown()
     text = " ".join(md.split())
     assert "Dashed: the minimum spacing 18 µm or less, where no check fails" in text
+
+
+def test_a_closed_pull_up_window_is_captioned_as_closed():
+    # tests/data/translator-cable.toml (invented): on the high segment the pull-ups across
+    # the translator alone draw more than SDA's weakest sink carries, so no Rp(min)
+    # exists; the caption read "Allowed pull-ups (shaded)" over a chart with no shading
+    design = load_design(ROOT / "tests" / "data" / "translator-cable.toml")
+    md = review.render_markdown(design, check_design(design))
+    assert "*Pull-up window: x SDA, segment high.* No pull-up fits at any Cb shown" in md
+    assert "*Pull-up window: x SCL, segment high.* Allowed pull-ups (shaded)" in md

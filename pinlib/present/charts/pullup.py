@@ -138,4 +138,7 @@ def pullup_window(cb, rp_min, rp_max, *, chosen_cb, chosen_rp,
         shape="diamond", filled=True, size=140, opacity=1).encode(
         x=xq(), y=yq("rp"), color=colour,
         tooltip=[alt.Tooltip("cb:Q", title=x_title), alt.Tooltip("rp:Q", title=y_title)])
-    return _titled(alt.layer(area, curves, marker), title, subtitle, width, height)
+    # a window closed at every Cb shown draws no band (an empty layer's scale has no
+    # extent: the renderer warned "Infinite extent")
+    layers = (area, curves, marker) if band else (curves, marker)
+    return _titled(alt.layer(*layers), title, subtitle, width, height)

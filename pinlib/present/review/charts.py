@@ -5,6 +5,8 @@ noise waveforms."""
 
 from __future__ import annotations
 
+import numpy as np
+
 from pinlib.core.errors import PinlibError
 from pinlib.core.labels import path_label
 from pinlib.model.result import BusResult
@@ -32,7 +34,9 @@ def _pullup_charts(bus, design, result: BusResult, keys, charts):
             sink, far = (("(IOL − I(far))", "; I(far) is the far side's pull-up current, "
                           "which the sink also carries through the translator") if d.shared
                          else ("IOL", ""))
-            caption = (f"Allowed pull-ups (shaded) between Rp(min) = (VDD(max) − VOL)/{sink} "
+            shaded = ("Allowed pull-ups (shaded) between" if _window_opens(d) else
+                      "No pull-up fits at any Cb shown: Rp(min) lies above Rp(max), with")
+            caption = (f"{shaded} Rp(min) = (VDD(max) − VOL)/{sink} "
                        f"of the weakest sink and Rp(max) = tr/({d.rise_factor:.4g}·Cb){far}. The "
                        f"diamond is the design: {_f(d.chosen_rp, 'Ω')} on "
                        f"{_f(d.chosen_cb, 'F')} (Rp(max) there {_f(d.rp_max_chosen, 'Ω')}). "
@@ -43,6 +47,15 @@ def _pullup_charts(bus, design, result: BusResult, keys, charts):
                     d.cb, d.rp_min, d.rp_max, chosen_cb=d.chosen_cb, chosen_rp=d.chosen_rp,
                     title=title, subtitle=sub,
                     chosen_label=f"design: {_f(d.chosen_rp, 'Ω')} at {_f(d.chosen_cb, 'F')}")))
+
+
+def _window_opens(d) -> bool:
+    """Whether the pull-up window of ``d`` (:func:`pinlib.present.plotdata.pullup_window_data`)
+    is open at some Cb it spans."""
+    hi = np.asarray(d.rp_max, dtype=float)
+    lo = np.broadcast_to(np.asarray(d.rp_min, dtype=float), hi.shape)
+    ok = np.isfinite(lo) & np.isfinite(hi) & (lo > 0)
+    return bool(np.any(lo[ok] <= hi[ok]))
 
 
 def _sentence(text: str) -> str:
