@@ -353,6 +353,20 @@ def test_an_unreadable_snapshot_is_advised_on_once(board, capsys, tmp_path, comm
     assert f"`pinlib check {board} --save` replaces it" in err
 
 
+def test_a_snapshot_number_that_is_none_is_called_so(board, capsys):
+    # NaN and Infinity, which JSON readers take, read "got 'a float'; expected a number"
+    design = load_design(board)
+    save_snapshot(design, check_design(design))
+    path = snapshot_path(board)
+    text = path.read_text(encoding="utf-8")
+    data = json.loads(text)
+    data["buses"][0]["figures"] = {"bus_capacitance": {"value": float("nan"), "unit": "F"}}
+    path.write_text(json.dumps(data), encoding="utf-8")
+    main(["check", str(board)])
+    err = " ".join(capsys.readouterr().err.split())
+    assert "(got 'nan (not a finite number)')" in err and "a float" not in err
+
+
 @pytest.mark.parametrize("damage", [
     ("buses", [1]), ("parts", []), ("buses", None), ("parts", {"U4": {"values": None}}),
     ("parts", {"U4": {"buses": [1], "part": "x"}}), ("status", {"a": 1}),

@@ -57,7 +57,10 @@ class _Check:
         self.file = str(path)
 
     def fail(self, field: str, value, expected: str):
-        shown = value if _is_scalar(value) else f"a {type(value).__name__}"
+        # a number that is none (NaN, ±Infinity, which JSON readers take) says so
+        shown = (value if _is_scalar(value) else
+                 f"{value} (not a finite number)" if isinstance(value, float) else
+                 f"a {type(value).__name__}")
         raise InputError(M.SNAPSHOT_DAMAGED, file=self.file, field=field or None,
                          value=shown, expected=expected)
 
