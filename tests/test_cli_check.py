@@ -482,6 +482,22 @@ def test_a_file_s_code_like_pinlib_s_own_colours_is_shown_and_the_status_words_c
     assert "\x1b" not in ours.sub("", out)
 
 
+def test_a_line_with_controls_fits_the_width_once_they_are_shown(tmp_path, capsys,
+                                                                  monkeypatch):
+    # a NUL in a value (invented design: the demo with "3 pF\u0000" as a tolerance) was
+    # measured as one column while wrapping and shown as four ("\x00"): 83 columns
+    monkeypatch.setenv("COLUMNS", "80")
+    text = DEMO.read_text(encoding="utf-8")
+    design = tmp_path / "nul.toml"
+    design.write_text(text.replace('supply_tolerance = "5 %"',
+                                   'supply_tolerance = "3 pF' + "\\u0000" * 8 + '"', 1),
+                      encoding="utf-8")
+    assert main(["check", str(design)]) == 2
+    err = capsys.readouterr().err
+    assert "\\x00" * 8 in err and "\x00" not in err
+    assert all(len(ln) <= 80 for ln in err.splitlines()), err
+
+
 def test_own_colours_are_kept_only_in_text_made_visible_first():
     from pinlib.present.report import paint
     from pinlib.present.visible import coloured_visible, visible

@@ -12,6 +12,8 @@ import re
 import textwrap
 import unicodedata
 
+from pinlib.core.controls import show_controls
+
 __all__ = ["wrap", "glue", "NBSP", "columns", "ljust", "has_wide", "wrap_wide"]
 
 #: A number stays on one line with its unit, its relation (≤, ≥, <, >) and the word
@@ -97,9 +99,6 @@ def glue(text: str) -> str:
     return _GLUE.sub(NBSP, text)
 
 
-_SHOWN_BREAKS = {ord(c): f"\\x{ord(c):02x}" for c in "\r\x0b\x0c"}
-
-
 def wrap(text: str, cols: int, indent: str = "", subsequent: str = "    ", *,
          break_long: bool = False, whole_long: bool = False) -> list[str]:
     """One logical line wrapped to ``cols`` characters, continuation lines indented by
@@ -109,10 +108,10 @@ def wrap(text: str, cols: int, indent: str = "", subsequent: str = "    ", *,
     name; with ``break_long=True`` it is broken where the width falls instead, and with
     ``whole_long=True`` it is left whole past the width (Markdown, whose viewers join
     the lines of a paragraph with a space: a word cut in two would read as two)."""
-    # the line breaks textwrap would turn into spaces (a carriage return, a vertical tab,
-    # a form feed: from a file, a title) are shown as the terminal filter shows them
-    # (pinlib.present.visible), not lost in a space
-    glued = glue(text).translate(_SHOWN_BREAKS)
+    # a character that acts on a terminal (from a file: a title, a value) is measured as
+    # the escape it is shown as (pinlib.core.controls), and a carriage return, vertical
+    # tab or form feed is that escape, not a space as textwrap would make it
+    glued = glue(show_controls(text))
     width = max(10, cols)
     if has_wide(glued):  # by the columns a terminal gives each character
         lines = wrap_wide(glued, width, indent, indent + subsequent)

@@ -23,6 +23,8 @@ from __future__ import annotations
 
 import re
 
+from pinlib.core.controls import BIDI, show_controls, shown
+
 __all__ = ["STATUS_SGR", "RESET", "visible", "coloured_visible", "write_coloured",
            "VisibleStream"]
 
@@ -32,30 +34,19 @@ STATUS_SGR = {"pass": "32", "warn": "33", "fail": "1;31"}
 RESET = "0"
 
 _OWN = "|".join(re.escape(f"\x1b[{code}m") for code in (*STATUS_SGR.values(), RESET))
-# C0 controls but tab and line feed (and carriage return where kept), DEL, the C1
-# controls, and the bidirectional embeddings, overrides and isolates
-_BIDI = "\u202a-\u202e\u2066-\u2069"
-_PATTERNS = {
-    False: re.compile(f"[\x00-\x08\x0b-\x1f\x7f-\x9f{_BIDI}]"),
-    True: re.compile(f"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f{_BIDI}]"),
-}
-_COLOURED = re.compile(f"({_OWN})|[\x00-\x08\x0b-\x1f\x7f-\x9f{_BIDI}]")
-
-
-def _shown(match: re.Match) -> str:
-    ch = match.group(0)
-    return f"\\x{ord(ch):02x}" if ord(ch) < 0x100 else f"\\u{ord(ch):04x}"
+# the controls of pinlib.core.controls, or pinlib's own status codes (kept)
+_COLOURED = re.compile(f"({_OWN})|[\x00-\x08\x0b-\x1f\x7f-\x9f{BIDI}]")
 
 
 def _own_or_shown(match: re.Match) -> str:
-    return match.group(1) or _shown(match)
+    return match.group(1) or shown(match)
 
 
 def visible(text: str, *, keep_cr: bool = False) -> str:
     """``text`` with every character that would act on a terminal shown as its escape
     (see the module notes); line breaks and tabs kept, and carriage returns where
     ``keep_cr``.  Shown text holds no such character: showing it again changes nothing."""
-    return _PATTERNS[keep_cr].sub(_shown, text)
+    return show_controls(text, keep_cr=keep_cr)
 
 
 def coloured_visible(text: str) -> str:
