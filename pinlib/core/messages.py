@@ -503,6 +503,9 @@ F_MAX_NOT_POSITIVE = "a maximum clock of 0 Hz allows no clock at all"
 SPI_MODES_BAD_LIST = ("a list of the SPI modes the part works in, each once (an empty "
                       "list would allow none)")
 SPI_MODE_NOT_0_TO_3 = "an SPI mode is a whole number from 0 to 3 (CPOL·2 + CPHA)"
+#: The hint of a TOML file that ends inside a value, a table or an array.
+TOML_ENDS_EARLY = ("the file ends in the middle of something written on or before this "
+                   "line (a value, an array, an inline table): it may have been cut short")
 #: The heading of an SPI bus's flights in ``pinlib check --detail``.
 FLIGHTS_HEAD = ("flights: from the driver's timing reference (its output at 50 % of its "
                 "supply into its test load) to the receiver's VIL(max) or VIH(min), "

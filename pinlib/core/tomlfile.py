@@ -292,6 +292,11 @@ def _toml_advice(msg: str, text: str, line: int | None):
                 continue
             if body.count('"') % 2 == 1 and '"""' not in body:
                 return i, None, "a string is not closed: add its closing quote"
+    if line is None and msg.endswith("(at end of document)"):
+        # the parser met the end inside a value, a table or an array: the last written
+        # line is where the file stops
+        last = max((i for i, ln in enumerate(lines, 1) if ln.strip()), default=None)
+        return last, None, M.TOML_ENDS_EARLY
     return line, None, None
 
 
