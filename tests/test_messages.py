@@ -215,7 +215,7 @@ def _(env):
 @case("TOML_ENDS_EARLY")
 def _(env):
     # a design cut short inside an inline table: the parser names no line
-    text = 'format = "pinlib.design/1"\ntitle = "t"\n[[bus]]\ndevices = [\n  { ref = "U1", part =\n'
+    text = 'format = "pinlib.design/1"\ntitle = "t"\n[[bus]]\ndevices = [\n  { ref = "U1", part = '
     err = _fails(lambda e: load_toml(e.write("cut.toml", text)), env)
     assert err.line == 5
     return err.message  # the hint of a NOT_TOML problem
