@@ -1024,3 +1024,20 @@ def test_check_lists_a_part_no_bus_can_take(lib, capsys):
     code, out, _ = run(capsys, "parts", "check", "team/half.toml", "--json")
     got = json.loads(out)
     assert code == 0 and not got["problems"] and len(got["warnings"]) == 3
+
+
+def test_a_long_unknown_key_in_a_value_table_is_cut_as_values_are(tmp_path, capsys,
+                                                                  monkeypatch):
+    # invented team part: a 300-character key beside `value` was printed whole, over
+    # four lines not indented as continuation lines
+    monkeypatch.chdir(tmp_path)
+    monkeypatch.setenv("COLUMNS", "80")
+    (tmp_path / "team").mkdir()
+    (tmp_path / "team" / "long.toml").write_text(
+        'format = "pinlib.part/1"\nid = "long"\ntitle = "long key (invented)"\n'
+        'extends = "eeprom-i2c"\n[pins.sda]\nc_in = { value = "8 pF", '
+        + "x" * 300 + ' = "1" }\n', encoding="utf-8")
+    code, out, _ = run(capsys, "parts", "check", "team")
+    assert code == 1
+    assert "(300 characters)" in out and "x" * 100 not in out
+    assert all(len(ln) <= 80 for ln in out.splitlines()), out

@@ -14,6 +14,7 @@ from __future__ import annotations
 import reprlib
 
 __all__ = [
+    "cut",
     "PinlibError",
     "InputError",
     "UnitError",
@@ -34,7 +35,7 @@ _SHORT.maxstring = _SHORT.maxother = ECHO_LIMIT
 _SHORT.maxlist = _SHORT.maxtuple = _SHORT.maxdict = _SHORT.maxset = 20
 
 
-def _cut(text: str, limit: int = ECHO_LIMIT) -> str:
+def cut(text: str, limit: int = ECHO_LIMIT) -> str:
     """``text`` itself, or its start, an ellipsis and its length when longer than ``limit``."""
     if len(text) <= limit:
         return text
@@ -115,7 +116,7 @@ class PinlibError(Exception):
         """The location: the file (or line) given, then the field."""
         parts = [file_or_line] if file_or_line else []
         if self.field:
-            parts.append(f"field '{_cut(self.field)}'")
+            parts.append(f"field '{cut(self.field)}'")
         return ", ".join(parts)
 
     def message_in(self, path) -> str:
@@ -151,7 +152,7 @@ class PinlibError(Exception):
             "file": self.file,
             "line": self.line,
             "field": self.field,
-            "value": None if self.value is None else _cut(str(self.value)),
+            "value": None if self.value is None else cut(str(self.value)),
             "expected": self.expected,
             "hint": self.hint,
             "message": self.message,
@@ -168,8 +169,8 @@ def _echo(value: object) -> str:
     if isinstance(value, (list, tuple, dict, set)):
         if len(value) > ECHO_LIMIT:
             return f"a {type(value).__name__} of {len(value):,} items"
-        return _cut(_SHORT.repr(value))  # nested contents cut too
-    return _cut(repr(value))
+        return cut(_SHORT.repr(value))  # nested contents cut too
+    return cut(repr(value))
 
 
 class InputError(PinlibError, ValueError):

@@ -13,7 +13,7 @@ from __future__ import annotations
 from typing import Any
 
 from pinlib.core import messages as M
-from pinlib.core.errors import UnitError
+from pinlib.core.errors import UnitError, cut
 from pinlib.core.protocols import SPI_MODE_NUMBERS
 from pinlib.core.quantity import Threshold, format_si, parse, parse_threshold, range_text
 from pinlib.core.valueclass import value_class
@@ -206,7 +206,8 @@ def _split_table(raw, field):
     if isinstance(raw, dict):
         unknown = set(raw) - _TABLE_KEYS
         if unknown:
-            raise UnitError(M.VALUE_TABLE_UNKNOWN_KEY.format(key=sorted(unknown)[0]), field=field,
+            raise UnitError(M.VALUE_TABLE_UNKNOWN_KEY.format(key=cut(sorted(unknown)[0])),
+                            field=field,
                             expected="only value, basis, source, typ")
         if "value" not in raw:
             raise UnitError(M.VALUE_TABLE_WITHOUT_VALUE, field=field,
