@@ -477,7 +477,8 @@ class Library:
         out = [part_id]
         while True:
             parent = self.files[out[-1]].raw.get("extends")
-            if not parent or parent in out or parent not in self.files:
+            # an extends that is not an id (an array, a table) is its file's problem
+            if not isinstance(parent, str) or parent in out or parent not in self.files:
                 return out
             out.append(parent)
 
