@@ -27,3 +27,41 @@ def test_an_extends_that_is_not_an_id_is_its_file_s_error_everywhere(own, tmp_pa
     err = caught.value
     assert (err.file, err.line, err.field) == (str(f), 5, "extends")
     assert "extends names a part id" in err.message
+
+
+_TOO_LONG = "x" * 300  # invented test input: longer than a file system allows a name
+
+
+def _cli(argv, capsys) -> str:
+    from pinlib.cli import main
+
+    assert main(argv) == 2
+    return capsys.readouterr().err
+
+
+@pytest.mark.parametrize("how", ["--library", "PINLIB_LIBRARY", "FOLDER", "design"])
+def test_a_folder_name_too_long_is_an_error_naming_its_field(own, tmp_path, monkeypatch,
+                                                            capsys, how):
+    # each once let "OSError: [Errno 36] File name too long" out as a traceback
+    monkeypatch.chdir(tmp_path)
+    design = tmp_path / "d.toml"
+    write(tmp_path, "d.toml", 'format = "pinlib.design/1"\ntitle = "t"\n'
+          + (f'library = ["{_TOO_LONG}"]\n' if how == "design" else ""))
+    if how == "PINLIB_LIBRARY":
+        monkeypatch.setenv("PINLIB_LIBRARY", _TOO_LONG)
+        err = _cli(["parts", "list"], capsys)
+    elif how == "FOLDER":
+        err = _cli(["parts", "check", _TOO_LONG], capsys)
+    elif how == "design":
+        err = _cli(["check", str(design)], capsys)
+        how = "library[0]"
+    else:
+        err = _cli(["check", str(design), "--library", _TOO_LONG], capsys)
+    assert "Traceback" not in err and "cannot read the folder: File name too long" in err
+    assert f"field '{how}'" in err
+
+
+def test_the_loader_names_a_folder_it_cannot_look_up(own, tmp_path):
+    lib = load_library([tmp_path / _TOO_LONG])
+    (err,) = lib.problems
+    assert err.problem == "cannot read the folder: File name too long"

@@ -419,6 +419,23 @@ def _(env):
     return _fails(lambda e: load_library([e.tmp / "none"], env=False, strict=True), env)
 
 
+_TOO_LONG = "x" * 300  # invented test input: a name longer than a file system allows
+
+
+@case("CANNOT_READ_FOLDER",
+      M.CANNOT_READ_FOLDER.format(reason=os.strerror(errno.ENAMETOOLONG)))
+def _(env):
+    from pinlib.library.folders import require_folders
+
+    return _fails(lambda e: require_folders([e.tmp / _TOO_LONG], env=False), env)
+
+
+@case("CANNOT_USE_NAME", M.CANNOT_USE_NAME.format(reason=os.strerror(errno.ENAMETOOLONG)))
+def _(env):
+    design = env.write("d.toml", HEAD + I2C_BUS)
+    return env.cli("report", str(design), "--html", str(env.tmp / (_TOO_LONG + ".html")))
+
+
 @case("DUPLICATE_TEAM_ID")
 def _(env):
     env.write("team/first.toml", PART.format(id="same"))

@@ -54,6 +54,9 @@ NOT_A_REGULAR_FILE = "not a regular file (a device, a pipe or a socket is not re
 FILE_TOO_LARGE = "the file holds {size:,} bytes, more than the {limit:,} read"
 NESTED_TOO_DEEP = "arrays or tables nested deeper than {limit} levels"
 CANNOT_READ = "cannot read the file: {reason}"
+# core/pathkind.py's callers: a folder or file name the system will not look up
+CANNOT_READ_FOLDER = "cannot read the folder: {reason}"
+CANNOT_USE_NAME = "cannot use this name: {reason}"
 NOT_TOML = "not valid TOML: {detail}"
 CANNOT_LOCK = "cannot lock the file: {reason}"
 LOCK_IS_A_LINK = "its lock file {lock} is a symbolic link, which pinlib does not follow"

@@ -22,6 +22,7 @@ from pinlib.core import messages as M
 from pinlib.core import nearby
 from pinlib.core.errors import LibraryError, PinlibError
 from pinlib.core.labels import counted
+from pinlib.core.pathkind import FOLDER, MISSING, UNREADABLE, path_kind
 from pinlib.core.records import Issue, Record, RecordError
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_index, line_of, load
@@ -553,8 +554,12 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
     loaded: set[Path] = set()
     read_files: set[Path] = set()  # a file read through a folder and a folder inside it
     for folder, is_builtin in sources:
-        if not folder.is_dir():
-            if folder.exists():
+        kind, reason = path_kind(folder)
+        if kind != FOLDER:
+            if kind == UNREADABLE:
+                err = LibraryError(M.CANNOT_READ_FOLDER.format(reason=reason),
+                                   file=str(folder))
+            elif kind != MISSING:
                 err = LibraryError(M.LIBRARY_IS_A_FILE, file=str(folder),
                                    hint=M.LIBRARY_FILE_HINT.format(folder=folder.parent))
             else:

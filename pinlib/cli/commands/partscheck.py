@@ -9,6 +9,7 @@ from pathlib import Path
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.labels import counted, plural_s
+from pinlib.core.pathkind import FILE, FOLDER, MISSING, UNREADABLE, path_kind
 from pinlib.present.terminal import shown_path as _rel
 
 
@@ -68,12 +69,16 @@ def run_check(args, load) -> int:
         n_files = len(lib.files)
     else:
         folder = Path(args.folder)
-        one = folder if folder.is_file() else None  # one part file: its folder's library
+        kind, reason = path_kind(folder)
+        one = folder if kind == FILE else None  # one part file: its folder's library
         if one is not None:
             folder = one.parent
-        elif not folder.exists():
+        elif kind == UNREADABLE:
+            raise InputError(M.CANNOT_READ_FOLDER.format(reason=reason), file=str(folder),
+                             field="FOLDER")
+        elif kind == MISSING:
             raise InputError(M.LIBRARY_FOLDER_NOT_FOUND, file=str(folder), field="FOLDER")
-        elif not folder.is_dir():
+        elif kind != FOLDER:
             raise InputError(M.NOT_A_FOLDER, file=str(folder), field="FOLDER")
         lib = load(args, extra=[folder])
         root = _places(one or folder)  # _under(file, file) holds: that file alone
