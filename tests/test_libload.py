@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import pytest
 
-from pinlib.core.errors import LibraryError
+from pinlib.core.errors import LibraryError, PinlibError
 from pinlib.library.loader import load_library
 from tests.test_library import builtin, part, write  # noqa: F401 - its fixture
 
@@ -65,3 +65,26 @@ def test_the_loader_names_a_folder_it_cannot_look_up(own, tmp_path):
     lib = load_library([tmp_path / _TOO_LONG])
     (err,) = lib.problems
     assert err.problem == "cannot read the folder: File name too long"
+
+
+@pytest.mark.parametrize("argv", [["check", "d.toml", "--library", ""],
+                                  ["parts", "list", "--library", ""],
+                                  ["new", "n.toml", "--part", "U1=base", "--library", ""]])
+def test_an_empty_library_folder_name_is_refused(own, tmp_path, monkeypatch, capsys, argv):
+    # invented test input: --library '' read the current folder as a library
+    monkeypatch.chdir(tmp_path)
+    write(tmp_path, "d.toml", 'format = "pinlib.design/1"\ntitle = "t"\n')
+    err = _cli(argv, capsys)
+    assert "field '--library': an empty folder name" in err
+
+
+def test_an_empty_library_line_of_a_design_is_refused(own, tmp_path):
+    from pinlib.model.design import load_design
+
+    d = write(tmp_path, "d.toml", 'format = "pinlib.design/1"\ntitle = "t"\nlibrary = [""]\n')
+    with pytest.raises(PinlibError) as caught:
+        load_design(d)
+    assert (caught.value.line, caught.value.field) == (3, "library[0]")
+    assert caught.value.problem == "an empty folder name"
+    lib = load_library([""])
+    assert [p.problem for p in lib.problems] == ["an empty folder name"]

@@ -436,6 +436,11 @@ def _(env):
     return env.cli("report", str(design), "--html", str(env.tmp / (_TOO_LONG + ".html")))
 
 
+@case("EMPTY_FOLDER_NAME")
+def _(env):
+    return _fails(lambda e: load_library([""], env=False, strict=True), env)
+
+
 @case("DUPLICATE_TEAM_ID")
 def _(env):
     env.write("team/first.toml", PART.format(id="same"))

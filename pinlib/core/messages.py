@@ -100,6 +100,8 @@ DESIGN_IN_LIBRARY = ("a design file: a library folder holds part files only; kee
                      "in another folder")
 PART_NEEDS_ID = "a part file needs an id"
 LIBRARY_FOLDER_NOT_FOUND = "library folder not found"
+# folders.py and loader.py: "" as a library folder (it would read the current folder)
+EMPTY_FOLDER_NAME = "an empty folder name"
 # folders.py, design/load.py and loader.py: a file (a team part's) named as a library
 LIBRARY_IS_A_FILE = "a file where a library folder belongs"
 LIBRARY_FILE_HINT = "name the folder that holds the part files: {folder}"

@@ -36,6 +36,11 @@ def require_folders(given: Iterable[str | os.PathLike] = (), *, env: bool = True
     option : str
         How the caller's folders were given, for the error's field.
     """
+    given = list(given)
+    for p in given:
+        if not os.fspath(p).strip():  # Path("") is "."": the current folder read as parts
+            raise InputError(M.EMPTY_FOLDER_NAME, field=option, value=os.fspath(p),
+                             expected="a team library folder, e.g. ./parts")
     sources = [(p, ENV) for p in (library_folders(env=True) if env else [])]
     sources += [(Path(p), option) for p in given]
     for path, source in sources:

@@ -545,6 +545,14 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
         (:func:`part_paths`).
     """
     lib = Library()
+    folders = list(folders)
+    for name in [f for f in folders if not os.fspath(f).strip()]:
+        # Path("") is ".": the current folder would be read as a library
+        err = LibraryError(M.EMPTY_FOLDER_NAME, field="library", value=os.fspath(name))
+        if strict:
+            raise err
+        lib.problems.append(err)
+    folders = [f for f in folders if os.fspath(f).strip()]
     found: dict[str, PartFile] = {}
     team_seen: dict[str, Path] = {}
     sources = ([(BUILTIN_DIR, True)] if builtin else []) + [

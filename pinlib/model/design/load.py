@@ -92,6 +92,9 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
         own = [base / p for p in raw.library]
         for i, folder in enumerate(own):
             kind, reason = path_kind(folder)
+            if not raw.library[i].strip():  # the design's own folder read as parts
+                raise DesignError(M.EMPTY_FOLDER_NAME, field=f"library[{i}]",
+                                  value=raw.library[i], **at(("library", i)))
             if kind == UNREADABLE:
                 raise DesignError(M.CANNOT_READ_FOLDER.format(reason=reason),
                                   field=f"library[{i}]", value=raw.library[i],
