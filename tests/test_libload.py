@@ -88,3 +88,16 @@ def test_an_empty_library_line_of_a_design_is_refused(own, tmp_path):
     assert caught.value.problem == "an empty folder name"
     lib = load_library([""])
     assert [p.problem for p in lib.problems] == ["an empty folder name"]
+
+
+def test_parts_check_notes_names_it_does_not_read_as_part_files(own, tmp_path, capsys):
+    # invented test input: UPPER.TOML and a folder dir.toml were passed over silently
+    team = tmp_path / "team"
+    write(team, "UPPER.TOML", part("upper", "base"))
+    (team / "dir.toml").mkdir()
+    from pinlib.cli import main
+
+    assert main(["parts", "check", str(team)]) == 0
+    out = " ".join(capsys.readouterr().out.split())
+    assert "UPPER.TOML: not read: a part file's name ends in .toml in lower case" in out
+    assert "dir.toml: a folder, not a part file" in out

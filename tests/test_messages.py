@@ -441,6 +441,22 @@ def _(env):
     return _fails(lambda e: load_library([""], env=False, strict=True), env)
 
 
+@case("TOML_NAME_NOT_LOWER")
+def _(env):
+    env.write("team/UPPER.TOML", PART.format(id="upper"))
+    notes: list = []
+    walk.part_paths(env.tmp / "team", notes=notes)
+    return notes[0]
+
+
+@case("TOML_NAMED_FOLDER")
+def _(env):
+    (env.tmp / "team" / "dir.toml").mkdir(parents=True)
+    notes: list = []
+    walk.part_paths(env.tmp / "team", notes=notes)
+    return notes[0]
+
+
 @case("DUPLICATE_TEAM_ID")
 def _(env):
     env.write("team/first.toml", PART.format(id="same"))

@@ -346,6 +346,11 @@ OPEN_DRAIN_NO_SINK_POINT = ("an open-drain pin without {missing}: its low level 
                             "or SMBus bus takes the specification's sink point instead)")
 SINK_POINT_RULE = "v_ol and i_ol, the datasheet's low level at a sink current"
 IBIS_GIVE_I_OL = "--i-ol CURRENT reads v_ol from the model's [Pulldown] table at that current"
+# walk.py, notes of `parts check`: names that look like part files and are not read
+TOML_NAME_NOT_LOWER = ("not read: a part file's name ends in .toml in lower case (rename "
+                       "it to be read)")
+TOML_NAMED_FOLDER = ("a folder, not a part file: it is walked as a subfolder, its own "
+                     "*.toml files read")
 PART_CHECKS_WAIT = ("some checks of this part (between its fields, of the part as a whole) "
                     "could not run: they need the problems listed for it fixed first")
 LIBRARY_HAS_PROBLEMS = ("{n} problem{s} in the library (run 'pinlib parts check'); parts "

@@ -102,9 +102,12 @@ def run_check(args, load) -> int:
                      for p in unsourced(pf)]
         from pinlib.library.walk import part_paths
 
-        n_files = 1 if one is not None else len(part_paths(folder)[0])  # as the walk read
+        skipped: list = []  # names that look like part files and are not read as one
+        n_files = 1 if one is not None else len(part_paths(folder, notes=skipped)[0])
         scope = _rel(one or folder)
     problems, notes = _beyond_first(lib, problems, root)
+    if args.folder is not None:
+        notes += skipped
     # A problem of a class is a problem of every part that extends it, each failing
     # with the same error at the class's line: listed once.
     once: dict = {}
