@@ -101,3 +101,34 @@ def test_parts_check_notes_names_it_does_not_read_as_part_files(own, tmp_path, c
     out = " ".join(capsys.readouterr().out.split())
     assert "UPPER.TOML: not read: a part file's name ends in .toml in lower case" in out
     assert "dir.toml: a folder, not a part file" in out
+
+
+def test_an_edge_time_of_zero_is_refused_at_its_own_line(own, tmp_path):
+    # invented test input: "0 ns" passed parts check, and check then blamed a field
+    # 'pins.sclk.times' that no file holds, at the pin's line, in raw SI lists
+    team = tmp_path / "team"
+    f = write(team, "o.toml", part("o", "base", '''
+        [pins.clk]
+        function = "gpio"
+        drive = "push-pull"
+        edges = [
+          { load = "15 pF", rise = "5 ns", fall = "5 ns" },
+          { load = "50 pF", rise = "0 ns", fall = "5 ns" },
+        ]
+        '''))
+    (err,) = load_library([team]).problems
+    assert (err.file, err.line, err.field) == (str(f), 12, "pins.clk.edges[1].rise")
+    assert err.problem == "an edge time of 0 s or less" and err.expected == "above 0 s"
+
+
+@pytest.mark.parametrize("low", ["1e-320 V", "1e-30 V", "3.3 mV"])
+def test_a_supply_below_the_lowest_rail_is_refused_where_written(own, tmp_path, low):
+    # invented test input: a denormal supply min passed parts check, and check then
+    # warned of "inf VDD" at VDD "10e-321 V" in the class's file
+    team = tmp_path / "team"
+    f = write(team, "z.toml", part("z", "base", f'supply = {{ min = "{low}", max = "3.6 V" }}\n'))
+    lib = load_library([team])
+    (err,) = lib.problems
+    assert (err.file, err.line, err.field) == (str(f), 6, "supply.min")
+    assert err.problem == "implausibly low for a logic rail" and "0.5 V" in err.expected
+    assert "inf" not in err.message and "z" not in lib.parts

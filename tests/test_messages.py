@@ -457,6 +457,13 @@ def _(env):
     return notes[0]
 
 
+@case("EDGE_TIME_NOT_POSITIVE")
+def _(env):
+    text = PART.format(id="p") + '\n[pins.clk]\nfunction = "gpio"\ndrive = "push-pull"\n' \
+        'edges = [{ load = "15 pF", rise = "0 ns" }]\n'  # invented test input
+    return _fails(lambda e: e.part(text), env)
+
+
 @case("DUPLICATE_TEAM_ID")
 def _(env):
     env.write("team/first.toml", PART.format(id="same"))

@@ -159,6 +159,7 @@ FAST_CORNER_NEEDS_PUSH_PULL = ("a fast corner belongs to a push-pull output; thi
                                "is {drive}")
 SUPPLY_MAX_BELOW_MIN = "supply max {max} is below min {min}"
 SUPPLY_MIN_NOT_POSITIVE = "the supply min must be above 0 V"
+EDGE_TIME_NOT_POSITIVE = "an edge time of 0 s or less"
 BRIDGE_BOTH_SIDES = "a bridging part describes both sides, [sides.a] and [sides.b]"
 CABLE_NEEDS_TWO_OF_THREE = ("a cable class gives its capacitance per length, or two of "
                             "capacitance, delay and impedance (each above zero)")
