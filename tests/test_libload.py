@@ -132,3 +132,24 @@ def test_a_supply_below_the_lowest_rail_is_refused_where_written(own, tmp_path, 
     assert (err.file, err.line, err.field) == (str(f), 6, "supply.min")
     assert err.problem == "implausibly low for a logic rail" and "0.5 V" in err.expected
     assert "inf" not in err.message and "z" not in lib.parts
+
+
+@pytest.mark.parametrize("text", ['format = "pinlib.part/1\nid = "base\n',  # not TOML
+                                  'format = "pinlib.part/2"\nid = "base"\n',
+                                  'format = "pinlib.part/1"\nid = "base"\n'
+                                  'title = "t"\ncategory = "sensor"\nsupply = "1 pF"\n'])
+def test_a_team_file_named_as_a_built_in_part_that_does_not_load_stands_in_its_place(
+        own, tmp_path, text):
+    # invented test input: an unterminated string or another format in a team file
+    # named as a built-in part left it out, and designs silently used the built-in part
+    # (a file that read but did not validate was already refused): both now fail with
+    # the team file's own error, and so does a part that extends it
+    team = tmp_path / "team"
+    f = write(team, "base.toml", text)
+    write(team, "child.toml", part("child", "base"))
+    lib = load_library([team], lazy=True)
+    for pid in ("base", "child"):
+        with pytest.raises(LibraryError) as caught:
+            lib.get(pid, file="d.toml", line=4, field="bus[0].devices[0].part")
+        assert caught.value.file == str(f) and "does not load" in caught.value.problem
+    assert lib.overrides == {"base": own / "generic" / "base.toml"}

@@ -464,6 +464,14 @@ def _(env):
     return _fails(lambda e: e.part(text), env)
 
 
+@case("UNREAD_OVERRIDE", M.UNREAD_OVERRIDE.format(part="base"))
+def _(env):
+    env.write("builtin/base.toml", PART.format(id="base"))
+    env.monkeypatch.setattr(loader, "BUILTIN_DIR", env.tmp / "builtin")
+    env.write("team/base.toml", 'format = "pinlib.part/1\n')  # invented: not TOML
+    return _fails(lambda e: load_library([e.tmp / "team"], env=False).get("base"), env).hint
+
+
 @case("DUPLICATE_TEAM_ID")
 def _(env):
     env.write("team/first.toml", PART.format(id="same"))

@@ -107,6 +107,9 @@ LIBRARY_IS_A_FILE = "a file where a library folder belongs"
 LIBRARY_FILE_HINT = "name the folder that holds the part files: {folder}"
 # folders.py (the hint of LIBRARY_FOLDER_NOT_FOUND when a command was told to read it)
 FOLDER_NAMED_BY = "{source} names it: correct or remove it there"
+# loader.py: the hint of a team file that cannot be read, named as a built-in part
+UNREAD_OVERRIDE = ("its name overrides the built-in part '{part}', which is not used in its "
+                   "place: designs that place '{part}' are refused until this file loads")
 DUPLICATE_TEAM_ID = "two team parts share one id"
 DUPLICATE_TEAM_ID_HINT = ("neither is used until one is renamed or removed (which one is "
                           "meant is not known)")

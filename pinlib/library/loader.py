@@ -4,7 +4,11 @@ Order of precedence, lowest first: the built-in library, then the folders of the
 ``PINLIB_LIBRARY`` environment variable (``os.pathsep``-separated), then folders a
 design names in ``library``, then ``--library`` folders from the command line.  A team
 part with the id of a built-in part overrides it (the listing says so); two team parts
-with one id is an error naming both files, and neither is used.
+with one id is an error naming both files, and neither is used.  A team file that cannot
+be read as a part file (not TOML, another format) and whose name is a built-in part's
+id overrides that part all the same: the id fails with the team file's error, as a
+team part that reads but does not validate fails with its own, and so does every part
+that extends it; the built-in part is never used in its place.
 
 ``extends`` is resolved by merging the parent's raw table under the child's: tables
 merge key by key (so a child may change one pin field), arrays and values replace.
@@ -599,6 +603,17 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
                 if strict:
                     raise
                 lib.problems.append(err)
+                stem = Path(path).stem
+                if not is_builtin and stem in found and found[stem].builtin:
+                    # a team file meant to override a built-in part, that cannot be
+                    # read: it stands in the built-in part's place, failing with its own
+                    # error (as a team part that reads but does not validate does), so
+                    # that no design silently uses the built-in numbers
+                    lib.overrides[stem] = found[stem].path
+                    err.hint = "; ".join(h for h in (err.hint, M.UNREAD_OVERRIDE.format(
+                        part=stem)) if h)
+                    found[stem] = PartFile(Path(path), {"id": stem}, "", False,
+                                           others=[err])
                 continue
             pid = pf.id
             if not is_builtin and pid in team_seen and team_seen[pid] != path:
