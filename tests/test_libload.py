@@ -153,3 +153,29 @@ def test_a_team_file_named_as_a_built_in_part_that_does_not_load_stands_in_its_p
             lib.get(pid, file="d.toml", line=4, field="bus[0].devices[0].part")
         assert caught.value.file == str(f) and "does not load" in caught.value.problem
     assert lib.overrides == {"base": own / "generic" / "base.toml"}
+
+
+def test_a_team_override_that_breaks_a_built_in_part_is_named_and_checked(own, tmp_path,
+                                                                          capsys):
+    # invented test input: a team override of the built-in class "base" with no pins;
+    # a built-in part extending it failed at its own file, the team file unnamed, and
+    # parts check of the team folder said "no problems"
+    from pinlib.library import loader
+
+    write(own / "sensor", "kid.toml", part("kid", "base", '[pins.sda]\nc_in = "6 pF"\n'))
+    team = tmp_path / "team"
+    over = write(team, "base.toml", 'format = "pinlib.part/1"\nid = "base"\ntitle = "t"\n'
+                 'category = "sensor"\nabstract = true\n[pins]\n')
+    lib = load_library([team], lazy=True)
+    with pytest.raises(LibraryError) as caught:
+        lib.get("kid")
+    hint = caught.value.hint
+    assert caught.value.file == str(own / "sensor" / "kid.toml")
+    assert f"'kid' extends 'base', which the team file {over} overrides" in hint
+    from pinlib.cli import main
+
+    assert main(["parts", "check", str(team)]) == 1
+    out = " ".join(capsys.readouterr().out.split())
+    assert "kid.toml:6, field 'pins.sda.function': a required field is missing" in out
+    assert "which the team file" in out and "1 problem" in out
+    assert loader.BUILTIN_DIR == own

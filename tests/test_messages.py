@@ -472,6 +472,17 @@ def _(env):
     return _fails(lambda e: load_library([e.tmp / "team"], env=False).get("base"), env).hint
 
 
+@case("INHERITS_OVERRIDE", lambda: M.INHERITS_OVERRIDE.format(
+    part="eeprom-i2c", cls="i2c-peripheral", file="team/i2c-peripheral.toml"))
+def _(env):
+    # invented test input: a team override of a built-in class with no pins
+    env.write("team/i2c-peripheral.toml", 'format = "pinlib.part/1"\nid = "i2c-peripheral"\n'
+              'title = "t"\ncategory = "sensor"\nabstract = true\n[pins]\n')
+    env.monkeypatch.chdir(env.tmp)
+    return _fails(lambda e: load_library([Path("team")], env=False).get("eeprom-i2c"),
+                  env).hint
+
+
 @case("DUPLICATE_TEAM_ID")
 def _(env):
     env.write("team/first.toml", PART.format(id="same"))

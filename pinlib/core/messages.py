@@ -110,6 +110,9 @@ FOLDER_NAMED_BY = "{source} names it: correct or remove it there"
 # loader.py: the hint of a team file that cannot be read, named as a built-in part
 UNREAD_OVERRIDE = ("its name overrides the built-in part '{part}', which is not used in its "
                    "place: designs that place '{part}' are refused until this file loads")
+# loader.py and partscheck.py: a part broken by a team override of a class it extends
+INHERITS_OVERRIDE = ("'{part}' extends '{cls}', which the team file {file} overrides: "
+                     "the override lacks or changes what '{part}' needs")
 DUPLICATE_TEAM_ID = "two team parts share one id"
 DUPLICATE_TEAM_ID_HINT = ("neither is used until one is renamed or removed (which one is "
                           "meant is not known)")

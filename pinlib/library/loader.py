@@ -438,7 +438,8 @@ class Library:
         broken = self.problems_of(part_id)
         if broken:
             first = broken[0]
-            hints = [first.hint, M.NAMED_AT.format(where=where) if where else None]
+            hints = [first.hint, self.override_hint(part_id, first),
+                     M.NAMED_AT.format(where=where) if where else None]
             if len(broken) > 1:
                 hints.append(counted(M.MORE_PROBLEMS, len(broken) - 1))
             raise LibraryError(M.PART_DOES_NOT_VALIDATE.format(part=part_id,
@@ -467,6 +468,19 @@ class Library:
             chain |= {e.file for c in self.chain(part_id) for e in self.files[c].others}
             return [p for p in self.problems if p.file in chain]
         return [p for p in self.unread() if Path(p.file).stem == part_id]
+
+    def override_hint(self, part_id: str, problem: PinlibError) -> str | None:
+        """Where a part that does not load inherits from a team file that overrides a
+        built-in class (its problem lies elsewhere, often in the built-in part's own
+        file: the override took away what it needs), as a hint naming that team file;
+        None when the problem is in that file or no class of the chain is overridden."""
+        if part_id not in self.files:  # a file that could not be read: no chain
+            return None
+        for pid in self.chain(part_id)[1:]:
+            path = self.files[pid].path
+            if pid in self.overrides and problem.file != str(path):
+                return M.INHERITS_OVERRIDE.format(part=part_id, cls=pid, file=path)
+        return None
 
     def unread(self) -> list[PinlibError]:
         """Problems of library files that could not be read as part files at all."""

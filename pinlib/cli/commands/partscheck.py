@@ -45,6 +45,27 @@ def _beyond_first(lib, problems: list, root) -> tuple[list, list]:
     return out, notes
 
 
+def _through_overrides(lib, root) -> list:
+    """The problems of every part (built-in, or of another folder) that does not load
+    and extends a class that a team file in ``root`` overrides: the override broke it,
+    so they are that folder's problems, each with a hint naming the override."""
+    from pinlib.core.errors import LibraryError
+
+    over = {pid for pid in lib.overrides if _under(lib.files[pid].path, root)}
+    out = []
+    for pid, pf in lib.files.items():
+        if not over or pid in lib.parts or _under(pf.path, root):
+            continue
+        if not any(c in over for c in lib.chain(pid)[1:]):
+            continue
+        for p in lib.problems_of(pid):
+            hint = lib.override_hint(pid, p)
+            if hint is not None:
+                out.append(LibraryError(p.problem, file=p.file, line=p.line, field=p.field,
+                                        value=p.value, expected=p.expected, hint=hint))
+    return out
+
+
 def run_check(args, load) -> int:
     """`pinlib parts check [FOLDER]`: every problem of the part files (``load(args,
     extra)`` gives the library); exit 1 when one is found."""
@@ -100,6 +121,7 @@ def run_check(args, load) -> int:
             problems += related
         problems += [p for pf in lib.files.values() if _under(pf.path, root)
                      for p in unsourced(pf)]
+        problems += _through_overrides(lib, root)
         from pinlib.library.walk import part_paths
 
         skipped: list = []  # names that look like part files and are not read as one
