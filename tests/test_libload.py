@@ -179,3 +179,48 @@ def test_a_team_override_that_breaks_a_built_in_part_is_named_and_checked(own, t
     assert "kid.toml:6, field 'pins.sda.function': a required field is missing" in out
     assert "which the team file" in out and "1 problem" in out
     assert loader.BUILTIN_DIR == own
+
+
+def test_an_override_of_another_category_is_warned_and_named_where_refused(own, tmp_path,
+                                                                          capsys):
+    # invented test input: a translator file copied with the id of a built-in cable
+    # class; parts check said "no problems", and check refused the design's cable
+    # without naming the team file
+    from pinlib.cli import main
+    from pinlib.model.design import load_design
+
+    write(own / "cable", "flat.toml", '''format = "pinlib.part/1"
+id = "flat"
+title = "Invented flat cable (test data)"
+category = "cable"
+[line]
+capacitance = "50 pF/m"
+impedance = "110 Ω"
+''')
+    team = tmp_path / "team"
+    clash = write(team, "xl.toml", part("flat", "base", title="copied translator")
+                  .replace('"sensor"', '"translator"'))
+    assert main(["parts", "check", str(team)]) == 0
+    out = " ".join(capsys.readouterr().out.split())
+    assert "xl.toml:2, field 'id': overrides the built-in part 'flat'" in out
+    assert "a cable part, with a translator part" in out
+    design = write(tmp_path, "d.toml", '''format = "pinlib.design/1"
+title = "t"
+[board.geometry.g]
+kind = "microstrip"
+width = "0.2 mm"
+height = "0.18 mm"
+er = 4.2
+[[bus]]
+id = "b"
+protocol = "i2c"
+supply = "3.3 V"
+trace = { length = "5 cm", geometry = "g" }
+cables = [{ part = "flat", length = "0.5 m" }]
+devices = [{ ref = "U1", part = "dev", role = "controller" }]
+''')
+    write(team, "dev.toml", part("dev", "base"))
+    with pytest.raises(PinlibError) as caught:
+        load_design(design, library_folders=[team])
+    assert caught.value.field.endswith("cables[0].part")
+    assert f"'flat' here is the team part of {clash}" in caught.value.hint

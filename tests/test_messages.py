@@ -483,6 +483,35 @@ def _(env):
                   env).hint
 
 
+def _override_warnings(env, name, category):
+    # invented test input: a team file with the built-in id "base"
+    from pinlib.library.overrides import override_warnings
+
+    env.write("builtin/base.toml", PART.format(id="base"))
+    env.monkeypatch.setattr(loader, "BUILTIN_DIR", env.tmp / "builtin")
+    env.write(f"team/{name}.toml", PART.format(id="base").replace('"sensor"', category))
+    (got,) = override_warnings(load_library([env.tmp / "team"], env=False))
+    return got
+
+
+@case("OVERRIDE_OTHER_CATEGORY", lambda: "a sensor part, with a memory part")
+def _(env):
+    return _override_warnings(env, "base", '"memory"').message
+
+
+@case("OVERRIDE_OTHER_NAME", lambda: "from a file named other.toml: a copied file")
+def _(env):
+    return _override_warnings(env, "other", '"sensor"').message
+
+
+@case("TEAM_OVERRIDE_PLACED", lambda: "'mcu-3v3' here is the team part of ")
+def _(env):
+    # invented test input: a team override of the controller class, abstract
+    env.write("team/mcu-3v3.toml", PART.format(id="mcu-3v3").replace(
+        'category = "sensor"\n', 'category = "sensor"\nabstract = true\n'))
+    return _fails(lambda e: e.design(I2C_BUS, library_folders=[e.tmp / "team"]), env).hint
+
+
 @case("DUPLICATE_TEAM_ID")
 def _(env):
     env.write("team/first.toml", PART.format(id="same"))

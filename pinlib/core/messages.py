@@ -113,6 +113,15 @@ UNREAD_OVERRIDE = ("its name overrides the built-in part '{part}', which is not 
 # loader.py and partscheck.py: a part broken by a team override of a class it extends
 INHERITS_OVERRIDE = ("'{part}' extends '{cls}', which the team file {file} overrides: "
                      "the override lacks or changes what '{part}' needs")
+# design/resolve.py: a design's refusal of a part that a team file overrides
+TEAM_OVERRIDE_PLACED = ("'{part}' here is the team part of {file}, which overrides the "
+                        "built-in part of that id")
+# overrides.py (warnings of `parts check`): an override that looks like a slip
+OVERRIDE_OTHER_CATEGORY = ("overrides the built-in part '{part}' ({builtin}), a {was} part, "
+                           "with a {now} part: every design that places '{part}' gets this "
+                           "one (a copied file whose id was not changed?)")
+OVERRIDE_OTHER_NAME = ("overrides the built-in part '{part}' ({builtin}) from a file named "
+                       "{name}: a copied file whose id was not changed?")
 DUPLICATE_TEAM_ID = "two team parts share one id"
 DUPLICATE_TEAM_ID_HINT = ("neither is used until one is renamed or removed (which one is "
                           "meant is not known)")

@@ -70,6 +70,7 @@ def run_check(args, load) -> int:
     """`pinlib parts check [FOLDER]`: every problem of the part files (``load(args,
     extra)`` gives the library); exit 1 when one is found."""
     from pinlib.core.errors import LibraryError
+    from pinlib.library.overrides import override_warnings
     from pinlib.library.pinsets import pin_set_warnings
     from pinlib.library.plausible import part_warnings
     from pinlib.library.sources import unsourced
@@ -83,6 +84,7 @@ def run_check(args, load) -> int:
             problems += part_warnings(lib.parts[pid], lib, own_only=True)
         warned = [w for pid in lib.parts for w in pin_set_warnings(lib.parts[pid],
                                                                    lib.files[pid])]
+        warned += override_warnings(lib)
         for pf in lib.files.values():  # a datasheet or measured basis without its source
             problems += unsourced(pf)
         scope = "the library"
@@ -108,6 +110,7 @@ def run_check(args, load) -> int:
                      for w in part_warnings(lib.parts[pid], lib, own_only=True)]
         warned = [w for pid in lib.parts if _under(lib.files[pid].path, root)
                   for w in pin_set_warnings(lib.parts[pid], lib.files[pid])]
+        warned += override_warnings(lib, lambda path: _under(path, root))
         # A part of the folder that does not load because of a file it extends.
         for pid, pf in lib.files.items():
             if pid in lib.parts or not _under(pf.path, root):
