@@ -224,3 +224,14 @@ devices = [{ ref = "U1", part = "dev", role = "controller" }]
         load_design(design, library_folders=[team])
     assert caught.value.field.endswith("cables[0].part")
     assert f"'flat' here is the team part of {clash}" in caught.value.hint
+
+
+def test_a_workbook_file_name_too_long_is_not_found_not_a_traceback(tmp_path, monkeypatch):
+    # the workbooks' find_file asked Path.exists of the name typed: OSError
+    pytest.importorskip("ipywidgets")
+    from pinlib.present.widgets.common import find_file
+
+    monkeypatch.chdir(tmp_path)
+    with pytest.raises(PinlibError) as caught:
+        find_file(_TOO_LONG + ".toml")
+    assert caught.value.problem == "cannot use this name: File name too long"
