@@ -226,7 +226,7 @@ devices = [{ ref = "U1", part = "dev", role = "controller" }]
     assert f"'flat' here is the team part of {clash}" in caught.value.hint
 
 
-def test_a_workbook_file_name_too_long_is_not_found_not_a_traceback(tmp_path, monkeypatch):
+def test_a_workbook_file_name_too_long_is_an_error_not_a_traceback(tmp_path, monkeypatch):
     # the workbooks' find_file asked Path.exists of the name typed: OSError
     pytest.importorskip("ipywidgets")
     from pinlib.present.widgets.common import find_file
