@@ -428,6 +428,99 @@ def _(env):
     return _fails(lambda e: load_library([e.tmp / "none"], env=False, strict=True), env)
 
 
+_TOO_LONG = "x" * 300  # invented test input: a name longer than a file system allows
+
+
+@case("CANNOT_READ_FOLDER",
+      M.CANNOT_READ_FOLDER.format(reason=os.strerror(errno.ENAMETOOLONG)))
+def _(env):
+    from pinlib.library.folders import require_folders
+
+    return _fails(lambda e: require_folders([e.tmp / _TOO_LONG], env=False), env)
+
+
+@case("CANNOT_USE_NAME", M.CANNOT_USE_NAME.format(reason=os.strerror(errno.ENAMETOOLONG)))
+def _(env):
+    design = env.write("d.toml", HEAD + I2C_BUS)
+    return env.cli("report", str(design), "--html", str(env.tmp / (_TOO_LONG + ".html")))
+
+
+@case("EMPTY_FOLDER_NAME")
+def _(env):
+    return _fails(lambda e: load_library([""], env=False, strict=True), env)
+
+
+@case("TOML_NAME_NOT_LOWER")
+def _(env):
+    env.write("team/UPPER.TOML", PART.format(id="upper"))
+    notes: list = []
+    walk.part_paths(env.tmp / "team", notes=notes)
+    return notes[0]
+
+
+@case("TOML_NAMED_FOLDER")
+def _(env):
+    (env.tmp / "team" / "dir.toml").mkdir(parents=True)
+    notes: list = []
+    walk.part_paths(env.tmp / "team", notes=notes)
+    return notes[0]
+
+
+@case("EDGE_TIME_NOT_POSITIVE")
+def _(env):
+    text = PART.format(id="p") + '\n[pins.clk]\nfunction = "gpio"\ndrive = "push-pull"\n' \
+        'edges = [{ load = "15 pF", rise = "0 ns" }]\n'  # invented test input
+    return _fails(lambda e: e.part(text), env)
+
+
+@case("UNREAD_OVERRIDE", M.UNREAD_OVERRIDE.format(part="base"))
+def _(env):
+    env.write("builtin/base.toml", PART.format(id="base"))
+    env.monkeypatch.setattr(loader, "BUILTIN_DIR", env.tmp / "builtin")
+    env.write("team/base.toml", 'format = "pinlib.part/1\n')  # invented: not TOML
+    return _fails(lambda e: load_library([e.tmp / "team"], env=False).get("base"), env).hint
+
+
+@case("INHERITS_OVERRIDE", lambda: M.INHERITS_OVERRIDE.format(
+    part="eeprom-i2c", cls="i2c-peripheral", file="team/i2c-peripheral.toml"))
+def _(env):
+    # invented test input: a team override of a built-in class with no pins
+    env.write("team/i2c-peripheral.toml", 'format = "pinlib.part/1"\nid = "i2c-peripheral"\n'
+              'title = "t"\ncategory = "sensor"\nabstract = true\n[pins]\n')
+    env.monkeypatch.chdir(env.tmp)
+    return _fails(lambda e: load_library([Path("team")], env=False).get("eeprom-i2c"),
+                  env).hint
+
+
+def _override_warnings(env, name, category):
+    # invented test input: a team file with the built-in id "base"
+    from pinlib.library.overrides import override_warnings
+
+    env.write("builtin/base.toml", PART.format(id="base"))
+    env.monkeypatch.setattr(loader, "BUILTIN_DIR", env.tmp / "builtin")
+    env.write(f"team/{name}.toml", PART.format(id="base").replace('"sensor"', category))
+    (got,) = override_warnings(load_library([env.tmp / "team"], env=False))
+    return got
+
+
+@case("OVERRIDE_OTHER_CATEGORY", lambda: "a sensor part, with a memory part")
+def _(env):
+    return _override_warnings(env, "base", '"memory"').message
+
+
+@case("OVERRIDE_OTHER_NAME", lambda: "from a file named other.toml: a copied file")
+def _(env):
+    return _override_warnings(env, "other", '"sensor"').message
+
+
+@case("TEAM_OVERRIDE_PLACED", lambda: "'mcu-3v3' here is the team part of ")
+def _(env):
+    # invented test input: a team override of the controller class, abstract
+    env.write("team/mcu-3v3.toml", PART.format(id="mcu-3v3").replace(
+        'category = "sensor"\n', 'category = "sensor"\nabstract = true\n'))
+    return _fails(lambda e: e.design(I2C_BUS, library_folders=[e.tmp / "team"]), env).hint
+
+
 @case("DUPLICATE_TEAM_ID")
 def _(env):
     env.write("team/first.toml", PART.format(id="same"))
@@ -757,12 +850,10 @@ def _(env):
 
 
 def _typ_beyond(env):
-    from pinlib.library.plausible import part_warnings
-
+    # the part is refused by the loader (every path that writes a part meets it)
     text = PART.format(id="p").replace('c_in = "8 pF"',
                                        'c_in = { value = "8 pF", typ = "9 pF" }', 1)
-    (got,) = part_warnings(env.part(text).get("p"), None)
-    return got
+    return _fails(lambda e: e.part(text), env)
 
 
 @case("TYP_BEYOND_LIMIT", M.TYP_BEYOND_LIMIT.format(limit="8 pF"))
@@ -781,10 +872,8 @@ def _(env):
 @case("TYP_NEED_RULE", M.TYP_NEED_RULE.format(field="t_su_dat"))
 def _(env):
     # invented test part: a typical data setup need above the guaranteed one
-    from pinlib.library.plausible import part_warnings
-
     text = PART.format(id="p") + '\n[timing]\nt_su_dat = { value = "100 ns", typ = "250 ns" }\n'
-    (got,) = part_warnings(env.part(text).get("p"), None)
+    got = _fails(lambda e: e.part(text), env)
     assert got.field == "timing.t_su_dat.typ" and got.value == "250 ns"
     return got.message
 

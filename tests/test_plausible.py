@@ -326,7 +326,9 @@ def _timing_warnings(team, category, parent, fields):
     (team / "t-timing.toml").write_text(TIMING_TYP.format(category=category, parent=parent,
                                                           timing=timing), encoding="utf-8")
     lib = load_library([team], env=False)
-    return {w.field: w for w in part_warnings(lib.get("t-timing"), lib)}
+    # refused by the loader, each typ at its own line and field (pinlib.library.typside)
+    assert ("t-timing" in lib.parts) == (not lib.problems)
+    return {p.field: p for p in lib.problems}
 
 
 def test_every_timing_limit_checks_the_side_of_its_typical_value(team):
@@ -383,17 +385,21 @@ def test_a_bridge_offset_threshold_and_transition_limit_check_their_typical_valu
         v_gs_th = { value = "1.5 V", typ = "1.8 V" }
         """), encoding="utf-8")
     lib = load_library([team], env=False)
-    assert [w.field for w in part_warnings(lib.get("rep"), lib, own_only=True)] == [
-        "sides.b.low_offset.typ"]
-    assert [w.field for w in part_warnings(lib.get("xl"), lib, own_only=True)] == [
-        "bridge.v_gs_th.typ"]
+    assert "rep" not in lib.parts and "xl" not in lib.parts
+    assert sorted(p.field for p in lib.problems) == ["bridge.v_gs_th.typ",
+                                                     "sides.b.low_offset.typ"]
 
 
-def test_recording_a_typical_output_delay_above_its_maximum_warns(team, capsys):
-    # invented test part; the audit's command: no warning was given
-    (team / "t-timing.toml").write_text(TIMING_TYP.format(
-        category="memory", parent="eeprom-i2c", timing=""), encoding="utf-8")
+def test_recording_a_typical_output_delay_above_its_maximum_is_refused(team, capsys):
+    # invented test part; the audit's command: no warning was given, then a warning
+    # only: the typ is refused by the loader, and the file is left as it was
+    path = team / "t-timing.toml"
+    path.write_text(TIMING_TYP.format(category="memory", parent="eeprom-i2c", timing=""),
+                    encoding="utf-8")
+    before = path.read_text(encoding="utf-8")
     assert main(["parts", "record", "t-timing", "timing.t_vd_dat", "0.9 us", "--typ", "2 us",
-                 "--source", "invented rev A", "--library", str(team)]) == 0
+                 "--source", "invented rev A", "--library", str(team)]) == 2
     err = " ".join(capsys.readouterr().err.split())
-    assert "field 'timing.t_vd_dat.typ': the typical value lies beyond the limit" in err
+    assert "field 'timing.t_vd_dat.typ': the value is refused: the typical value lies " \
+        "beyond the limit" in err
+    assert path.read_text(encoding="utf-8") == before

@@ -54,6 +54,9 @@ NOT_A_REGULAR_FILE = "not a regular file (a device, a pipe or a socket is not re
 FILE_TOO_LARGE = "the file holds {size:,} bytes, more than the {limit:,} read"
 NESTED_TOO_DEEP = "arrays or tables nested deeper than {limit} levels"
 CANNOT_READ = "cannot read the file: {reason}"
+# core/pathkind.py's callers: a folder or file name the system will not look up
+CANNOT_READ_FOLDER = "cannot read the folder: {reason}"
+CANNOT_USE_NAME = "cannot use this name: {reason}"
 NOT_TOML = "not valid TOML: {detail}"
 CANNOT_LOCK = "cannot lock the file: {reason}"
 LOCK_IS_A_LINK = "its lock file {lock} is a symbolic link, which pinlib does not follow"
@@ -97,11 +100,28 @@ DESIGN_IN_LIBRARY = ("a design file: a library folder holds part files only; kee
                      "in another folder")
 PART_NEEDS_ID = "a part file needs an id"
 LIBRARY_FOLDER_NOT_FOUND = "library folder not found"
+# folders.py and loader.py: "" as a library folder (it would read the current folder)
+EMPTY_FOLDER_NAME = "an empty folder name"
 # folders.py, design/load.py and loader.py: a file (a team part's) named as a library
 LIBRARY_IS_A_FILE = "a file where a library folder belongs"
 LIBRARY_FILE_HINT = "name the folder that holds the part files: {folder}"
 # folders.py (the hint of LIBRARY_FOLDER_NOT_FOUND when a command was told to read it)
 FOLDER_NAMED_BY = "{source} names it: correct or remove it there"
+# loader.py: the hint of a team file that cannot be read, named as a built-in part
+UNREAD_OVERRIDE = ("its name overrides the built-in part '{part}', which is not used in its "
+                   "place: designs that place '{part}' are refused until this file loads")
+# loader.py and partscheck.py: a part broken by a team override of a class it extends
+INHERITS_OVERRIDE = ("'{part}' extends '{cls}', which the team file {file} overrides: "
+                     "the override lacks or changes what '{part}' needs")
+# design/resolve.py: a design's refusal of a part that a team file overrides
+TEAM_OVERRIDE_PLACED = ("'{part}' here is the team part of {file}, which overrides the "
+                        "built-in part of that id")
+# overrides.py (warnings of `parts check`): an override that looks like a slip
+OVERRIDE_OTHER_CATEGORY = ("overrides the built-in part '{part}' ({builtin}), a {was} part, "
+                           "with a {now} part: every design that places '{part}' gets this "
+                           "one (a copied file whose id was not changed?)")
+OVERRIDE_OTHER_NAME = ("overrides the built-in part '{part}' ({builtin}) from a file named "
+                       "{name}: a copied file whose id was not changed?")
 DUPLICATE_TEAM_ID = "two team parts share one id"
 DUPLICATE_TEAM_ID_HINT = ("neither is used until one is renamed or removed (which one is "
                           "meant is not known)")
@@ -154,6 +174,7 @@ FAST_CORNER_NEEDS_PUSH_PULL = ("a fast corner belongs to a push-pull output; thi
                                "is {drive}")
 SUPPLY_MAX_BELOW_MIN = "supply max {max} is below min {min}"
 SUPPLY_MIN_NOT_POSITIVE = "the supply min must be above 0 V"
+EDGE_TIME_NOT_POSITIVE = "an edge time of 0 s or less"
 BRIDGE_BOTH_SIDES = "a bridging part describes both sides, [sides.a] and [sides.b]"
 CABLE_NEEDS_TWO_OF_THREE = ("a cable class gives its capacitance per length, or two of "
                             "capacitance, delay and impedance (each above zero)")
@@ -166,6 +187,7 @@ SOURCE_NOT_TEXT = "a source must be text"
 LEVEL_RANGE = "a multiple of VDD within ±2 plus an offset within {lo} V to {hi} V"
 # plausible.py (warnings: the part still loads)
 IMPLAUSIBLE_VALUE = "an implausible value for this field"
+# typside.py (refusals: the part does not load)
 TYP_BEYOND_LIMIT = "the typical value lies beyond the limit beside it, {limit}"
 TYP_SIDE_RULE = ("a typ {rel} the value, which for {field} is the {side} (one of "
                  "them mistyped, or the two swapped?)")
@@ -341,6 +363,11 @@ OPEN_DRAIN_NO_SINK_POINT = ("an open-drain pin without {missing}: its low level 
                             "or SMBus bus takes the specification's sink point instead)")
 SINK_POINT_RULE = "v_ol and i_ol, the datasheet's low level at a sink current"
 IBIS_GIVE_I_OL = "--i-ol CURRENT reads v_ol from the model's [Pulldown] table at that current"
+# walk.py, notes of `parts check`: names that look like part files and are not read
+TOML_NAME_NOT_LOWER = ("not read: a part file's name ends in .toml in lower case (rename "
+                       "it to be read)")
+TOML_NAMED_FOLDER = ("a folder, not a part file: it is walked as a subfolder, its own "
+                     "*.toml files read")
 PART_CHECKS_WAIT = ("some checks of this part (between its fields, of the part as a whole) "
                     "could not run: they need the problems listed for it fixed first")
 LIBRARY_HAS_PROBLEMS = ("{n} problem{s} in the library (run 'pinlib parts check'); parts "

@@ -14,6 +14,7 @@ from pathlib import Path
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.core.pathkind import FOLDER, MISSING, UNREADABLE, path_kind
 from pinlib.library.loader import library_folders
 
 __all__ = ["ENV", "OPTION", "require_folders", "team_folders_hint"]
@@ -35,13 +36,22 @@ def require_folders(given: Iterable[str | os.PathLike] = (), *, env: bool = True
     option : str
         How the caller's folders were given, for the error's field.
     """
+    given = list(given)
+    for p in given:
+        if not os.fspath(p).strip():  # Path("") is "."": the current folder read as parts
+            raise InputError(M.EMPTY_FOLDER_NAME, field=option, value=os.fspath(p),
+                             expected="a team library folder, e.g. ./parts")
     sources = [(p, ENV) for p in (library_folders(env=True) if env else [])]
     sources += [(Path(p), option) for p in given]
     for path, source in sources:
-        if path.exists() and not path.is_dir():
+        kind, reason = path_kind(path)
+        if kind == UNREADABLE:
+            raise InputError(M.CANNOT_READ_FOLDER.format(reason=reason), field=source,
+                             value=str(path), hint=M.FOLDER_NAMED_BY.format(source=source))
+        if kind not in (FOLDER, MISSING):
             raise InputError(M.LIBRARY_IS_A_FILE, field=source, value=str(path),
                              hint=M.LIBRARY_FILE_HINT.format(folder=path.parent))
-        if not path.is_dir():
+        if kind != FOLDER:
             raise InputError(M.LIBRARY_FOLDER_NOT_FOUND, field=source, value=str(path),
                              hint=M.FOLDER_NAMED_BY.format(source=source))
 

@@ -4,7 +4,11 @@ Order of precedence, lowest first: the built-in library, then the folders of the
 ``PINLIB_LIBRARY`` environment variable (``os.pathsep``-separated), then folders a
 design names in ``library``, then ``--library`` folders from the command line.  A team
 part with the id of a built-in part overrides it (the listing says so); two team parts
-with one id is an error naming both files, and neither is used.
+with one id is an error naming both files, and neither is used.  A team file that cannot
+be read as a part file (not TOML, another format) and whose name is a built-in part's
+id overrides that part all the same: the id fails with the team file's error, as a
+team part that reads but does not validate fails with its own, and so does every part
+that extends it; the built-in part is never used in its place.
 
 ``extends`` is resolved by merging the parent's raw table under the child's: tables
 merge key by key (so a child may change one pin field), arrays and values replace.
@@ -22,6 +26,7 @@ from pinlib.core import messages as M
 from pinlib.core import nearby
 from pinlib.core.errors import LibraryError, PinlibError
 from pinlib.core.labels import counted
+from pinlib.core.pathkind import FOLDER, MISSING, UNREADABLE, path_kind
 from pinlib.core.records import Issue, Record, RecordError
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_index, line_of, load
@@ -433,7 +438,8 @@ class Library:
         broken = self.problems_of(part_id)
         if broken:
             first = broken[0]
-            hints = [first.hint, M.NAMED_AT.format(where=where) if where else None]
+            hints = [first.hint, self.override_hint(part_id, first),
+                     M.NAMED_AT.format(where=where) if where else None]
             if len(broken) > 1:
                 hints.append(counted(M.MORE_PROBLEMS, len(broken) - 1))
             raise LibraryError(M.PART_DOES_NOT_VALIDATE.format(part=part_id,
@@ -463,6 +469,19 @@ class Library:
             return [p for p in self.problems if p.file in chain]
         return [p for p in self.unread() if Path(p.file).stem == part_id]
 
+    def override_hint(self, part_id: str, problem: PinlibError) -> str | None:
+        """Where a part that does not load inherits from a team file that overrides a
+        built-in class (its problem lies elsewhere, often in the built-in part's own
+        file: the override took away what it needs), as a hint naming that team file;
+        None when the problem is in that file or no class of the chain is overridden."""
+        if part_id not in self.files:  # a file that could not be read: no chain
+            return None
+        for pid in self.chain(part_id)[1:]:
+            path = self.files[pid].path
+            if pid in self.overrides and problem.file != str(path):
+                return M.INHERITS_OVERRIDE.format(part=part_id, cls=pid, file=path)
+        return None
+
     def unread(self) -> list[PinlibError]:
         """Problems of library files that could not be read as part files at all."""
         read = {str(pf.path) for pf in self.files.values()}
@@ -477,7 +496,8 @@ class Library:
         out = [part_id]
         while True:
             parent = self.files[out[-1]].raw.get("extends")
-            if not parent or parent in out or parent not in self.files:
+            # an extends that is not an id (an array, a table) is its file's problem
+            if not isinstance(parent, str) or parent in out or parent not in self.files:
                 return out
             out.append(parent)
 
@@ -543,6 +563,14 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
         (:func:`part_paths`).
     """
     lib = Library()
+    folders = list(folders)
+    for name in [f for f in folders if not os.fspath(f).strip()]:
+        # Path("") is ".": the current folder would be read as a library
+        err = LibraryError(M.EMPTY_FOLDER_NAME, field="library", value=os.fspath(name))
+        if strict:
+            raise err
+        lib.problems.append(err)
+    folders = [f for f in folders if os.fspath(f).strip()]
     found: dict[str, PartFile] = {}
     team_seen: dict[str, Path] = {}
     sources = ([(BUILTIN_DIR, True)] if builtin else []) + [
@@ -552,8 +580,12 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
     loaded: set[Path] = set()
     read_files: set[Path] = set()  # a file read through a folder and a folder inside it
     for folder, is_builtin in sources:
-        if not folder.is_dir():
-            if folder.exists():
+        kind, reason = path_kind(folder)
+        if kind != FOLDER:
+            if kind == UNREADABLE:
+                err = LibraryError(M.CANNOT_READ_FOLDER.format(reason=reason),
+                                   file=str(folder))
+            elif kind != MISSING:
                 err = LibraryError(M.LIBRARY_IS_A_FILE, file=str(folder),
                                    hint=M.LIBRARY_FILE_HINT.format(folder=folder.parent))
             else:
@@ -585,6 +617,17 @@ def load_library(folders: Iterable[str | os.PathLike] = (), *, builtin: bool = T
                 if strict:
                     raise
                 lib.problems.append(err)
+                stem = Path(path).stem
+                if not is_builtin and stem in found and found[stem].builtin:
+                    # a team file meant to override a built-in part, that cannot be
+                    # read: it stands in the built-in part's place, failing with its own
+                    # error (as a team part that reads but does not validate does), so
+                    # that no design silently uses the built-in numbers
+                    lib.overrides[stem] = found[stem].path
+                    err.hint = "; ".join(h for h in (err.hint, M.UNREAD_OVERRIDE.format(
+                        part=stem)) if h)
+                    found[stem] = PartFile(Path(path), {"id": stem}, "", False,
+                                           others=[err])
                 continue
             pid = pf.id
             if not is_builtin and pid in team_seen and team_seen[pid] != path:

@@ -67,7 +67,13 @@ def team_folder(into_folder, why: str) -> Path:
         raise LibraryError(M.LIBRARY_IS_SYSTEM_FOLDER.format(real=real), file=str(folder),
                            field="--into",
                            hint="name a folder of its own for the team's parts, e.g. ./parts")
-    if folder.exists() and not folder.is_dir():
+    from pinlib.core.pathkind import FOLDER, MISSING, UNREADABLE, path_kind
+
+    kind, reason = path_kind(folder)
+    if kind == UNREADABLE:
+        raise WriteError(M.CANNOT_READ_FOLDER.format(reason=reason), file=str(folder),
+                         field="--into")
+    if kind not in (FOLDER, MISSING):
         raise WriteError(M.NOT_A_FOLDER, file=str(folder),
                          expected="the team library folder the part file goes in",
                          hint=f"name the folder, not a file in it (e.g. {folder.parent})")

@@ -47,12 +47,14 @@ from pinlib.core.records import (
     Convert,
     Involving,
     Record,
+    RecordError,
     Rule,
     WrittenAs,
     after,
     check,
     field,
 )
+from pinlib.library.typside import typ_problems
 from pinlib.library.values import (
     Sourced,
     StatedList,
@@ -109,6 +111,11 @@ Frequency = _q("Hz", 0.0, 100e9)
 CapPerLength = _q("F/m", 0.0, 1e-6)
 DelayPerLength = _q("s/m", 1e-9, 1e-6)
 Level = Annotated[Sourced, Convert(threshold_parser())]
+#: The lowest supply a part may state, as the lowest rail a design may set
+#: (pinlib.model.design.raw.SUPPLY_MIN takes it from here): no logic rail runs below
+#: 0.5 V, and a lower figure is a unit slip ("3.3 mV", "1e-30 V") whose relative levels
+#: would come out at thousands of VDD (common practice, no source).
+LOWEST_RAIL = 0.5
 
 
 def _modes_written() -> dict:
@@ -135,6 +142,14 @@ class Edge(Record):
     levels: Literal["10-90", "20-80"] = "10-90"
     vdd: Voltage | None = None  # the supply the point was stated at, when it matters
 
+    @check("rise")
+    def _rise_above_zero(cls, v, earlier):
+        return _edge_time(v)
+
+    @check("fall")
+    def _fall_above_zero(cls, v, earlier):
+        return _edge_time(v)
+
     @after
     def _one_edge(self):
         # A check of the whole record, so it also runs when neither key is given
@@ -142,6 +157,13 @@ class Edge(Record):
         if self.rise is None and self.fall is None:
             raise ValueError(M.EDGE_NEEDS_RISE_OR_FALL)
         return self
+
+
+def _edge_time(v):
+    # an edge of 0 s is no datasheet's figure: the edge fit would need an infinite slope
+    if v is not None and not v.value > 0.0:
+        raise LibraryError(M.EDGE_TIME_NOT_POSITIVE, value=v.text, expected="above 0 s")
+    return v
 
 
 class FastCorner(Record):
@@ -256,15 +278,30 @@ class Supply(Record):
         # a part runs from a positive supply; 0 V once divided by zero in the engines
         if not v.value > 0.0:
             raise ValueError(M.SUPPLY_MIN_NOT_POSITIVE)
-        return v
+        return _a_rail(v)
+
+    @check("typ")
+    def _typ_a_rail(cls, v, earlier):
+        return v if v is None or not v.value > 0.0 else _a_rail(v)
 
     @check("max")
     def _ordered(cls, v, earlier):
+        if v.value > 0.0:
+            _a_rail(v)
         lo = earlier.get("min")
         if lo is not None and v.value < lo.value:
             raise Involving(M.SUPPLY_MAX_BELOW_MIN.format(max=v.text, min=lo.text),
                             ("min", "max"))
         return v
+
+
+def _a_rail(v):
+    """A supply figure at least :data:`LOWEST_RAIL`, as a design's rail."""
+    if v.value < LOWEST_RAIL:
+        raise LibraryError(M.SUPPLY_TOO_LOW, value=v.text,
+                           expected=f"at least {LOWEST_RAIL:g} V, as a "
+                                    "design's rail (no logic rail runs lower)")
+    return v
 
 
 class Provenance(Record):
@@ -387,6 +424,15 @@ class Part(Record):
         if v and set(v) != {"a", "b"}:
             raise ValueError(M.BRIDGE_BOTH_SIDES)
         return v
+
+    @after
+    def _typ_beside_its_limit(self):
+        # a typ beyond the limit it rides beside (12 pF max, 20 pF typ): one of them
+        # mistyped; refused at the typ's place, whatever wrote it (pinlib.library.typside)
+        issues = typ_problems(self)
+        if issues:
+            raise RecordError(issues)
+        return self
 
     def functions(self) -> set[str]:
         """Every pin function the part offers (on either side for a bridge)."""

@@ -40,7 +40,8 @@ def _system_folder(real: Path) -> bool:
     return text in _SYSTEM_FOLDERS or real == home
 
 
-def part_paths(folder: Path, *, follow_links: bool = False) -> tuple[list[Path], list]:
+def part_paths(folder: Path, *, follow_links: bool = False,
+               notes: list | None = None) -> tuple[list[Path], list]:
     """The ``*.toml`` files of a library folder and its subfolders, and the problems met.
 
     A folder that resolves to a system folder, that nests deeper than
@@ -48,6 +49,9 @@ def part_paths(folder: Path, *, follow_links: bool = False) -> tuple[list[Path],
     :data:`MAX_PART_FILES` part files is refused (a LibraryError, field ``library``).
     A link that leads out of the folder is not followed unless ``follow_links`` (a
     problem each); every real folder and file is read once however many links lead to it.
+    ``notes``, when given, receives a note (a LibraryError) for each name that looks
+    like a part file and is not read as one: ``UPPER.TOML`` (the walk reads names ending
+    in ``.toml``, in lower case), a folder named ``*.toml`` (walked as a subfolder).
     """
     root = folder.resolve()
     if _system_folder(root):
@@ -85,6 +89,11 @@ def part_paths(folder: Path, *, follow_links: bool = False) -> tuple[list[Path],
                                                  hint=f"it leads to {real}"))
                 continue
             real = real or real_here / entry.name
+            if notes is not None and entry.name.lower().endswith(".toml"):
+                if is_dir:
+                    notes.append(LibraryError(M.TOML_NAMED_FOLDER, file=str(path)))
+                elif not entry.name.endswith(".toml"):
+                    notes.append(LibraryError(M.TOML_NAME_NOT_LOWER, file=str(path)))
             if is_dir:
                 if real in seen:
                     continue

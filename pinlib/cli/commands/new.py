@@ -106,6 +106,9 @@ def run(args) -> int:
     if os.path.lexists(args.design):
         raise WriteError(M.NEW_FILE_EXISTS, file=str(args.design),
                          hint="choose another name, or remove the file first")
+    from pinlib.library.folders import require_folders
+
+    require_folders(args.library)  # a folder it was told to read: exit 2, naming who said so
     lib = load_library(args.library, lazy=True)
     placed = []
     for ref, pid in placements:

@@ -9,6 +9,7 @@ from pathlib import Path
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 from pinlib.core.labels import counted, plural_s
+from pinlib.core.pathkind import FILE, FOLDER, MISSING, UNREADABLE, path_kind
 from pinlib.present.terminal import shown_path as _rel
 
 
@@ -44,10 +45,32 @@ def _beyond_first(lib, problems: list, root) -> tuple[list, list]:
     return out, notes
 
 
+def _through_overrides(lib, root) -> list:
+    """The problems of every part (built-in, or of another folder) that does not load
+    and extends a class that a team file in ``root`` overrides: the override broke it,
+    so they are that folder's problems, each with a hint naming the override."""
+    from pinlib.core.errors import LibraryError
+
+    over = {pid for pid in lib.overrides if _under(lib.files[pid].path, root)}
+    out = []
+    for pid, pf in lib.files.items():
+        if not over or pid in lib.parts or _under(pf.path, root):
+            continue
+        if not any(c in over for c in lib.chain(pid)[1:]):
+            continue
+        for p in lib.problems_of(pid):
+            hint = lib.override_hint(pid, p)
+            if hint is not None:
+                out.append(LibraryError(p.problem, file=p.file, line=p.line, field=p.field,
+                                        value=p.value, expected=p.expected, hint=hint))
+    return out
+
+
 def run_check(args, load) -> int:
     """`pinlib parts check [FOLDER]`: every problem of the part files (``load(args,
     extra)`` gives the library); exit 1 when one is found."""
     from pinlib.core.errors import LibraryError
+    from pinlib.library.overrides import override_warnings
     from pinlib.library.pinsets import pin_set_warnings
     from pinlib.library.plausible import part_warnings
     from pinlib.library.sources import unsourced
@@ -61,6 +84,7 @@ def run_check(args, load) -> int:
             problems += part_warnings(lib.parts[pid], lib, own_only=True)
         warned = [w for pid in lib.parts for w in pin_set_warnings(lib.parts[pid],
                                                                    lib.files[pid])]
+        warned += override_warnings(lib)
         for pf in lib.files.values():  # a datasheet or measured basis without its source
             problems += unsourced(pf)
         scope = "the library"
@@ -68,12 +92,16 @@ def run_check(args, load) -> int:
         n_files = len(lib.files)
     else:
         folder = Path(args.folder)
-        one = folder if folder.is_file() else None  # one part file: its folder's library
+        kind, reason = path_kind(folder)
+        one = folder if kind == FILE else None  # one part file: its folder's library
         if one is not None:
             folder = one.parent
-        elif not folder.exists():
+        elif kind == UNREADABLE:
+            raise InputError(M.CANNOT_READ_FOLDER.format(reason=reason), file=str(folder),
+                             field="FOLDER")
+        elif kind == MISSING:
             raise InputError(M.LIBRARY_FOLDER_NOT_FOUND, file=str(folder), field="FOLDER")
-        elif not folder.is_dir():
+        elif kind != FOLDER:
             raise InputError(M.NOT_A_FOLDER, file=str(folder), field="FOLDER")
         lib = load(args, extra=[folder])
         root = _places(one or folder)  # _under(file, file) holds: that file alone
@@ -82,6 +110,7 @@ def run_check(args, load) -> int:
                      for w in part_warnings(lib.parts[pid], lib, own_only=True)]
         warned = [w for pid in lib.parts if _under(lib.files[pid].path, root)
                   for w in pin_set_warnings(lib.parts[pid], lib.files[pid])]
+        warned += override_warnings(lib, lambda path: _under(path, root))
         # A part of the folder that does not load because of a file it extends.
         for pid, pf in lib.files.items():
             if pid in lib.parts or not _under(pf.path, root):
@@ -95,11 +124,15 @@ def run_check(args, load) -> int:
             problems += related
         problems += [p for pf in lib.files.values() if _under(pf.path, root)
                      for p in unsourced(pf)]
+        problems += _through_overrides(lib, root)
         from pinlib.library.walk import part_paths
 
-        n_files = 1 if one is not None else len(part_paths(folder)[0])  # as the walk read
+        skipped: list = []  # names that look like part files and are not read as one
+        n_files = 1 if one is not None else len(part_paths(folder, notes=skipped)[0])
         scope = _rel(one or folder)
     problems, notes = _beyond_first(lib, problems, root)
+    if args.folder is not None:
+        notes += skipped
     # A problem of a class is a problem of every part that extends it, each failing
     # with the same error at the class's line: listed once.
     once: dict = {}

@@ -175,10 +175,16 @@ def run(args) -> int:
         raise InputError(M.SEED_WITHOUT_MONTE_CARLO, field="--seed", value=args.seed,
                          hint="add --monte-carlo N")
     target = Path(args.html or args.md)
-    if target.is_dir():
+    from pinlib.core.pathkind import FOLDER, UNREADABLE, path_kind
+
+    kind, reason = path_kind(target)
+    if kind == UNREADABLE:
+        raise InputError(M.CANNOT_USE_NAME.format(reason=reason), file=str(target),
+                         field="--html" if args.html else "--md")
+    if kind == FOLDER:
         raise InputError(M.REPORT_TARGET_IS_FOLDER, file=str(target),
                          expected="a file name, e.g. review.html")
-    if not target.parent.is_dir() and str(target.parent):
+    if str(target.parent) and path_kind(target.parent)[0] != FOLDER:
         raise InputError(M.REPORT_FOLDER_MISSING, file=str(target),
                          hint=f"create {target.parent} first")
     refuse_irregular_target(target)  # /dev/full: refused now, not after the work

@@ -83,8 +83,13 @@ def workbook_folder(folder: str | Path) -> Path:
         When ``folder`` is not a folder, or neither it nor its ``workbooks/`` holds a
         notebook.
     """
+    from pinlib.core.pathkind import FOLDER, UNREADABLE, path_kind
+
     path = Path(folder)
-    if not path.is_dir():
+    kind, reason = path_kind(path)
+    if kind == UNREADABLE:
+        raise InputError(M.CANNOT_READ_FOLDER.format(reason=reason), file=str(path))
+    if kind != FOLDER:
         raise InputError(M.NOT_A_FOLDER, file=str(path))
     for candidate in (path, path / "workbooks"):
         if candidate.is_dir() and any(candidate.glob("*.ipynb")):

@@ -9,6 +9,7 @@ from pathlib import Path
 from pinlib.core import messages as M
 from pinlib.core import protocols
 from pinlib.core.errors import DesignError, InputError, LibraryError, PinlibError
+from pinlib.core.pathkind import FOLDER, MISSING, UNREADABLE, path_kind
 from pinlib.core.records import RecordError
 from pinlib.core.tomlfile import dotted as dotted_path
 from pinlib.core.tomlfile import line_index, line_of, load
@@ -90,12 +91,20 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
         base = path.parent if path else Path.cwd()
         own = [base / p for p in raw.library]
         for i, folder in enumerate(own):
-            if folder.exists() and not folder.is_dir():
+            kind, reason = path_kind(folder)
+            if not raw.library[i].strip():  # the design's own folder read as parts
+                raise DesignError(M.EMPTY_FOLDER_NAME, field=f"library[{i}]",
+                                  value=raw.library[i], **at(("library", i)))
+            if kind == UNREADABLE:
+                raise DesignError(M.CANNOT_READ_FOLDER.format(reason=reason),
+                                  field=f"library[{i}]", value=raw.library[i],
+                                  **at(("library", i)))
+            if kind not in (FOLDER, MISSING):
                 raise DesignError(M.LIBRARY_IS_A_FILE, field=f"library[{i}]",
                                   value=raw.library[i], hint=M.LIBRARY_FILE_HINT.format(
                                       folder=Path(raw.library[i]).parent),
                                   **at(("library", i)))
-            if not folder.is_dir():
+            if kind != FOLDER:
                 raise DesignError(M.DESIGN_LIBRARY_MISSING, field=f"library[{i}]",
                                   value=raw.library[i], hint=M.LOOKED_FOR.format(path=folder),
                                   **at(("library", i)))

@@ -11,6 +11,7 @@ from pinlib.core.errors import DesignError
 from pinlib.core.quantity import format_si, parse, range_text
 from pinlib.core.records import Convert, Record, Rule, WrittenAs, field
 from pinlib.core.worklimits import MAX_ROUTE_STRETCHES
+from pinlib.library.schema import LOWEST_RAIL
 
 FORMAT = "pinlib.design/1"
 PROTOCOLS = protocols.NAMES
@@ -97,7 +98,7 @@ Voltage = _unit("V", -100.0, 100.0)
 # are near 0.8 V to 1.2 V, and a rail below 0.5 V is a unit slip ("3.3 mV" for "3.3 V")
 # that would fail every level check with the cause listed last (common practice, no
 # source).
-SUPPLY_MIN = 0.5
+SUPPLY_MIN = LOWEST_RAIL  # the part format's lowest supply, one figure for both
 
 
 def _supply_hint(raw, x):

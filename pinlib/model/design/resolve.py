@@ -36,6 +36,13 @@ class _Resolver:
 
     def err(self, problem, loc, **kw):
         dotted = dotted_path(loc)
+        value = kw.get("value")
+        if loc and loc[-1] == "part" and isinstance(value, str) \
+                and value in self.library.overrides and value in self.library.files:
+            # the part placed is a team file's, not the built-in part of that id: name it
+            note = M.TEAM_OVERRIDE_PLACED.format(part=value,
+                                                 file=self.library.path_of(value))
+            kw["hint"] = "; ".join(h for h in (kw.get("hint"), note) if h)
         return DesignError(problem, file=self.fname, line=line_of(self.index, loc),
                            field=dotted, **kw)
 

@@ -13,6 +13,7 @@ import tomlkit
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError, WriteError
 from pinlib.core.labels import plural_s
+from pinlib.core.pathkind import FOLDER, path_kind
 from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS, protocol
 from pinlib.core.quantity import format_si
 from pinlib.core.tomlfile import atomic_write, tomllib
@@ -579,7 +580,7 @@ class BusBuilder(_Panel):
     def _bench_load_clicked(self) -> None:
         path = self.bench_file.value.strip()
         try:
-            if not path or Path(path).is_dir():
+            if not path or path_kind(path)[0] == FOLDER:
                 raise InputError(M.DESIGN_PATH_NEEDED, field="design",
                                  value=path or None,
                                  expected="a design file path such as "
@@ -654,7 +655,7 @@ class BusBuilder(_Panel):
         path = Path(path)
         text = self.design_text(relative_to=path.parent)
         design_from_text(tomllib.loads(text), text, path)
-        if path.is_dir():
+        if path_kind(path)[0] == FOLDER:
             raise WriteError(M.SAVE_TARGET_IS_FOLDER.format(file=path), file=str(path),
                              field="save as", expected="a design file path such as board.toml")
         if not overwrite and os.path.lexists(path):

@@ -38,6 +38,7 @@ import ipywidgets as W
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.eseries import values_in_range
+from pinlib.core.pathkind import MISSING, UNREADABLE, path_kind
 from pinlib.core.quantity import format_si, likely_units, parse
 from pinlib.present import charts
 from pinlib.present.widgets.markup import (
@@ -428,12 +429,16 @@ def find_file(path: str | os.PathLike) -> Path:
         When no such file exists.
     """
     p = Path(path)
-    if p.is_absolute() or p.exists():
-        if not p.exists():
+    # path_kind, not Path.exists: a name too long raises there
+    kind, reason = path_kind(p)
+    if kind == UNREADABLE:
+        raise InputError(M.CANNOT_USE_NAME.format(reason=reason), file=str(p))
+    if p.is_absolute() or kind != MISSING:
+        if kind == MISSING:
             raise InputError(M.FILE_NOT_FOUND, file=str(p))
         return p
     for base in Path.cwd().resolve().parents:
-        if (base / p).exists():
+        if path_kind(base / p)[0] not in (MISSING, UNREADABLE):
             return base / p
     raise InputError(M.FILE_NOT_FOUND, file=str(p),
                      hint="looked in the working folder and each folder above it")

@@ -20,6 +20,7 @@ import ipywidgets as W
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
+from pinlib.core.pathkind import FOLDER, path_kind
 from pinlib.core.protocols import PIN_FUNCTIONS
 from pinlib.core.tomlfile import tomllib
 from pinlib.library import load_library
@@ -139,7 +140,7 @@ class IbisImporter(_Panel):
 
         path = self.file.value.strip()
         try:
-            if not path or Path(path).is_dir():  # read_ibis("") would read the folder
+            if not path or path_kind(path)[0] == FOLDER:  # read_ibis("") reads the folder
                 raise InputError(M.FILE_NAME_NEEDED, field="IBIS file", value=path or None,
                                  expected="the path of an IBIS file, such as "
                                           "path/to/part.ibs")
@@ -216,7 +217,8 @@ class IbisImporter(_Panel):
             return None
         written: list[str] = []  # what the part lacks to be of use on a bus
         try:
-            folders = self.library_folders + ([self.folder] if self.folder.is_dir() else [])
+            folders = self.library_folders + (
+                [self.folder] if path_kind(self.folder)[0] == FOLDER else [])
             path = import_part(load_library(folders), self.ibis, self.component.value,
                                self.mapping(), self.new_id.value.strip(), self.folder,
                                warnings=written, **self._arguments())

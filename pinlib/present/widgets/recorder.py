@@ -10,6 +10,7 @@ import ipywidgets as W
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, LibraryError, PinlibError
+from pinlib.core.pathkind import FOLDER, path_kind
 from pinlib.library import load_library
 from pinlib.library.loader import Library
 from pinlib.present.widgets.common import (
@@ -133,7 +134,8 @@ class PartRecorder(_Panel):
                               self.tabs, self.message], layout=W.Layout(width="100%"))
 
     def _reload(self) -> Library:
-        folders = self.library_folders + ([self.folder] if self.folder.is_dir() else [])
+        folders = self.library_folders + (
+            [self.folder] if path_kind(self.folder)[0] == FOLDER else [])
         return load_library(folders)
 
     def _team_parts(self) -> list[str]:

@@ -19,6 +19,7 @@ import numpy as np
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.labels import check_label, figure_label, plural_s, short_label
+from pinlib.core.pathkind import FOLDER, path_kind
 from pinlib.core.protocols import is_open_drain
 from pinlib.core.quantity import format_si
 from pinlib.engines.dispatch import check_design
@@ -197,7 +198,7 @@ class SwapExplorer(_Panel):
     def _load_clicked(self) -> None:
         path = self.path_box.value.strip()
         try:
-            if not path or Path(path).is_dir():
+            if not path or path_kind(path)[0] == FOLDER:
                 raise InputError(M.DESIGN_PATH_NEEDED, field="design", value=path or None,
                                  expected="a design file path such as "
                                           "designs/demo-board.toml")
