@@ -283,6 +283,12 @@ BAD.update({
         "bus[0].lines.cs.capacitance", 21,
         ["an impedance of 50 MΩ", "no board trace or cable has", "got '1.2 aF/cm'",
          "between 1 Ω and 1 kΩ: at 60 ps/cm a capacitance of 60 fF/cm to 60 pF/cm"]),
+    "faster-than-light": (  # invented test input: 20 ps/cm, 1.5 c
+        SPI + 'lines.cs = { length = "4 cm", capacitance = "0.4 pF/cm", '
+              'delay = "20 ps/cm" }\n',
+        "bus[0].lines.cs.delay", 21,
+        ["shorter than light's in vacuum (1/c, 3.3356 ns/m)", "got '20 ps/cm'",
+         "at least 33.4 ps/cm"]),
     "impossible-impedance-low-in-route": (  # invented test input: 0.5 Ω
         SPI.replace(_SCLK, 'lines.sclk = { route = [\n  { from = "U1", to = "U2", '
                            'length = "5 cm", capacitance = "120 pF/cm", delay = "6 ns/m" },\n]}'),

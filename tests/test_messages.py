@@ -643,6 +643,14 @@ def _(env):
                   env)
 
 
+@case("DELAY_FASTER_THAN_LIGHT")
+def _(env):
+    # invented test input: 50 Ω over 10 pF/m gives 0.5 ns/m, a sixth of light's delay;
+    # a design's delay per length under 1/c is refused at its delay (tests/test_design.py)
+    return _fails(lambda e: e.part(_CABLE + 'capacitance = "10 pF/m"\nimpedance = "50 Ω"\n'),
+                  env)
+
+
 def _disagreeing(env):
     from pinlib.library.plausible import part_warnings
 

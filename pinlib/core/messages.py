@@ -155,6 +155,8 @@ FAST_CORNER_NEEDS_PUSH_PULL = ("a fast corner belongs to a push-pull output; thi
 SUPPLY_MAX_BELOW_MIN = "supply max {max} is below min {min}"
 SUPPLY_MIN_NOT_POSITIVE = "the supply min must be above 0 V"
 BRIDGE_BOTH_SIDES = "a bridging part describes both sides, [sides.a] and [sides.b]"
+DELAY_FASTER_THAN_LIGHT = ("a delay per length shorter than light's in vacuum (1/c, "
+                           "3.3356 ns/m): no line carries a signal faster")
 CABLE_Z0_IMPOSSIBLE = ("a cable class's impedance of {z0} ({how}) is one no line has: "
                        "expected {low} to {high}")
 CABLE_NEEDS_TWO_OF_THREE = ("a cable class gives its capacitance per length, or two of "

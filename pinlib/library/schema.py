@@ -106,8 +106,11 @@ Voltage = _q("V", -50.0, 50.0, signed=True)
 Resistance = _q("Ω", 0.0, 100e6)
 Time = _q("s", 0.0, 10.0)
 Frequency = _q("Hz", 0.0, 100e9)
+#: The delay of light in vacuum per metre, 1/c (c = 299,792,458 m/s, exact by the SI's
+#: definition of the metre): no line's delay per length is shorter.
+DELAY_MIN = 1.0 / 299_792_458.0
 CapPerLength = _q("F/m", 0.0, 1e-6)
-DelayPerLength = _q("s/m", 1e-9, 1e-6)
+DelayPerLength = _q("s/m", DELAY_MIN, 1e-6)
 Level = Annotated[Sourced, Convert(threshold_parser())]
 
 
@@ -345,6 +348,8 @@ class LinePerLength(Record):
         """Refuse an impedance no line has (:data:`LINE_Z0_MIN` to :data:`LINE_Z0_MAX`):
         the stated or derived one, and delay / capacitance where all three are given."""
         d, c, z = self.delay, self.capacitance, self.impedance
+        if d.value < DELAY_MIN:  # derived (impedance x capacitance): a given one is ranged
+            raise Involving(M.DELAY_FASTER_THAN_LIGHT, ("capacitance", "impedance"))
         for z0, how in ((z.value, "delay / capacitance" if z.derived else "as given"),
                         (d.value / c.value, "delay / capacitance")):
             if not LINE_Z0_MIN <= z0 <= LINE_Z0_MAX:
