@@ -275,6 +275,25 @@ BAD.update({
                            'length = "5 cm", capacitance = "0 pF/cm", delay = "6 ns/m" },\n]}'),
         "bus[0].lines.sclk.route[0].capacitance", 21,
         ["needs a capacitance above 0"]),
+    # Z0 = delay / capacitance = 50 MΩ (a capacitance in fF/cm typed as 1.2e-06 pF/cm):
+    # the solver had blamed the length, asking for more than 5.7 m of a 4 cm trace
+    "impossible-impedance": (  # invented test input
+        SPI + 'lines.cs = { length = "4 cm", capacitance = "1.2e-06 pF/cm", '
+              'delay = "60 ps/cm" }\n',
+        "bus[0].lines.cs.capacitance", 21,
+        ["an impedance of 50 MΩ", "no board trace or cable has", "got '1.2 aF/cm'",
+         "between 1 Ω and 1 kΩ: at 60 ps/cm a capacitance of 60 fF/cm to 60 pF/cm"]),
+    "faster-than-light": (  # invented test input: 20 ps/cm, 1.5 c
+        SPI + 'lines.cs = { length = "4 cm", capacitance = "0.4 pF/cm", '
+              'delay = "20 ps/cm" }\n',
+        "bus[0].lines.cs.delay", 21,
+        ["shorter than light's in vacuum (1/c, 3.3356 ns/m)", "got '20 ps/cm'",
+         "at least 33.4 ps/cm"]),
+    "impossible-impedance-low-in-route": (  # invented test input: 0.5 Ω
+        SPI.replace(_SCLK, 'lines.sclk = { route = [\n  { from = "U1", to = "U2", '
+                           'length = "5 cm", capacitance = "120 pF/cm", delay = "6 ns/m" },\n]}'),
+        "bus[0].lines.sclk.route[0].capacitance", 21,
+        ["an impedance of 500 mΩ"]),
     # the engine refused it when the bus was evaluated, at the bus's header line
     "unknown-method": (GEOMETRY.replace("er = 4.3", 'er = 4.3\nmethod = "ipc2141"')
                        + SPI[len(GEOMETRY):], "board.geometry.top.method", 10,

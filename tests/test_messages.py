@@ -737,6 +737,22 @@ def _(env):
     return _fails(lambda e: e.part(_CABLE + 'impedance = "100 Ω"\n'), env)
 
 
+@case("CABLE_Z0_IMPOSSIBLE", lambda: M.CABLE_Z0_IMPOSSIBLE.format(
+    z0="50 kΩ", how="delay / capacitance", low="1 Ω", high="1 kΩ"))
+def _(env):
+    # invented test input: 6 ns/m over 1.2 fF/cm (50 kΩ), a capacitance typed 1000x too small
+    return _fails(lambda e: e.part(_CABLE + 'capacitance = "1.2e-3 pF/cm"\ndelay = "6 ns/m"\n'),
+                  env)
+
+
+@case("DELAY_FASTER_THAN_LIGHT")
+def _(env):
+    # invented test input: 50 Ω over 10 pF/m gives 0.5 ns/m, a sixth of light's delay;
+    # a design's delay per length under 1/c is refused at its delay (tests/test_design.py)
+    return _fails(lambda e: e.part(_CABLE + 'capacitance = "10 pF/m"\nimpedance = "50 Ω"\n'),
+                  env)
+
+
 def _disagreeing(env):
     from pinlib.library.plausible import part_warnings
 
@@ -2190,6 +2206,25 @@ def _(env):
 @case("IMPEDANCE_IS_DELAY_OVER_C")
 def _(env):
     return str(_zero_c_with_delay(env))
+
+
+def _implausible_z0(env):
+    # invented test input: 60 ps/cm over 1.2 aF/cm, 50 MΩ
+    return _fails(lambda e: e.design(SPI_BUS.replace(
+        'lines.sclk = { length = "3 cm", geometry = "g" }',
+        'lines.sclk = { length = "3 cm", capacitance = "1.2e-6 pF/cm", delay = "60 ps/cm" }')),
+        env)
+
+
+@case("LINE_Z0_IMPOSSIBLE", lambda: M.LINE_Z0_IMPOSSIBLE.format(z0="50 MΩ"))
+def _(env):
+    return _implausible_z0(env)
+
+
+@case("LINE_Z0_EXPECTED", lambda: M.LINE_Z0_EXPECTED.format(
+    low="1 Ω", high="1 kΩ", delay="60 ps/cm", c_low="60 fF/cm", c_high="60 pF/cm"))
+def _(env):
+    return str(_implausible_z0(env))
 
 
 @case("LINE_PULLUP_TOLERANCE_ALONE")

@@ -404,3 +404,57 @@ def test_a_load_far_beyond_the_mode_gets_no_sizing_advice(tmp_path):
     res = bus_result(tmp_path, one_bus(extra="900 pF", pullup="2.2 kΩ"))
     chk = next(c for c in res.checks if c.id == "pullup-window" and c.subject == "SDA")
     assert "segments" in chk.fix
+
+
+def test_a_sink_far_too_weak_for_any_load_gets_no_sizing_advice(tmp_path):
+    # invented test input: a target sinking 3 nA at 0.4 V (a rating typed in nA for mA);
+    # derived: Rp(min) = (3.3 V − 0.4 V) / 3 nA = 967 MΩ, so only a Cb of femtofarads
+    # rises within Fast-mode's 300 ns (UM10204 rev. 6 table 10); the advice had named a
+    # buffer splitting the bus into hundreds of thousands of segments
+    from test_opendrain import HEAD, PARTS
+
+    from pinlib.engines import opendrain
+    from pinlib.model.design import load_design
+
+    lib = tmp_path / "lib"
+    lib.mkdir()
+    (lib / "weak.toml").write_text(
+        'format = "pinlib.part/1"\nid = "t-weak"\nextends = "t-target"\n'
+        'title = "Test target, 3 nA sink"\n'
+        'provenance = { basis = "estimate", source = "test data, invented" }\n'
+        '[pins.sda]\ni_ol = "3 nA"\n', encoding="utf-8")
+    path = tmp_path / "d.toml"
+    path.write_text(HEAD + one_bus(devices=[
+        '{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+        '{ ref = "U2", part = "t-weak" }']), encoding="utf-8")
+    d = load_design(path, library_folders=[PARTS, lib])
+    res = opendrain.evaluate_bus(d.buses[0], d)
+    chk = next(c for c in res.checks if c.id == "pullup-window" and c.subject == "SDA")
+    assert chk.status == "fail"
+    assert "segments" not in chk.fix and "bring Cb below" not in chk.fix
+    assert "no shorter trace, buffer or active pull-up makes up for so weak a sink" \
+        in chk.fix
+    assert "is rated 3 nA" in chk.fix  # the sink that would do stays named
+    _no_infinity(res)
+
+
+def test_no_pull_up_across_a_translator_is_said_not_given_as_infinity(tmp_path):
+    # invented test input: tests/data/translator-cable.toml with its high side at 12 V:
+    # the 1.8 V sensor's 2 mA sink cannot carry the 12 V side's pull-up at all, so
+    # Rp(min) across the translator is infinite; the fix had read "(with them inf Ω)"
+    from test_opendrain import PARTS, TRANSLATOR_CABLE
+
+    from pinlib.engines.dispatch import check_design
+    from pinlib.model.design import load_design
+
+    body = TRANSLATOR_CABLE.read_text(encoding="utf-8").replace(
+        'supply = "3.3 V"', 'supply = "12 V"', 1).replace(
+        'library = ["parts"]', f'library = ["{PARTS.as_posix()}"]')
+    path = tmp_path / "d.toml"
+    path.write_text(body, encoding="utf-8")
+    res = check_design(load_design(path)).bus("x")
+    low = res.segments[1]
+    window = next(c for c in low.checks if c.id == "pullup-window" and c.subject == "SDA")
+    assert "with them no pull-up works: the sinks cannot carry the current of the " \
+        "pull-ups across the translator" in window.fix
+    assert "inf" not in window.fix

@@ -719,12 +719,16 @@ def test_docstring_examples():
     assert sum(r.failed for r in results) == 0
 
 
-def test_a_record_that_never_settles_keeps_its_own_time_axis(tmp_path):
-    # invented, deliberately absurd per-length values inside the loader's ranges: 10 MΩ
-    # (1 µs/m over 0.001 pF/cm) driven through 20 Ω rings for far longer than the
-    # record's last lengthening; the last record is kept, unsettled, on its own grid
-    # (the engine used to return the next, longer grid with it and stop on an internal
-    # shape error)
+def test_a_record_that_never_settles_keeps_its_own_time_axis(tmp_path, monkeypatch):
+    # invented, deliberately absurd per-length values: 10 MΩ (1 µs/m over 0.001 pF/cm)
+    # driven through 20 Ω rings for far longer than the record's last lengthening; the
+    # last record is kept, unsettled, on its own grid (the engine used to return the
+    # next, longer grid with it and stop on an internal shape error).  The loader now
+    # refuses an impedance over 1 kΩ (no line has it), and within that bound a 20 Ω
+    # driver's line settles inside the lengthenings: the bound is lifted here so the
+    # engine's own handling stays tested (a Section built through the Python API)
+    from pinlib.model.design import resolve
+    monkeypatch.setattr(resolve, "line_z0_problem", lambda delay, c: None)
     d = _design(tmp_path, """
 [[bus]]
 id = "reset"

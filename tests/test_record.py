@@ -254,14 +254,15 @@ def test_a_refusal_says_allowed_range_in_the_units_of_the_format_table(tmp_path)
     # invented test part: a team cable class extending the built-in ribbon-cable.  A
     # refusal is "outside the allowed range" ("plausible" is the range that only warns)
     # and states it per metre, as docs/formats/part.md does (it read "at least 10 ps/cm
-    # and at most 10 ns/cm" beside a documented 1 ns/m to 1 µs/m)
+    # and at most 10 ns/cm" beside a documented 1 ns/m to 1 µs/m; the lower end is now
+    # light's delay in vacuum, 1/c)
     new_part(load_library([], env=False), "x-cable", "ribbon-cable", tmp_path,
              source="catalogue p. 3")
     with pytest.raises(LibraryError) as info:
         record_value(load_library([tmp_path], env=False), "x-cable", "line.delay",
                      "0.5 ns/m", "catalogue p. 3")
     assert info.value.problem == "the value is refused: outside the allowed range"
-    assert info.value.expected == "at least 1 ns/m and at most 1 µs/m"
+    assert info.value.expected == "at least 3.34 ns/m and at most 1 µs/m"
     assert "plausible" not in str(info.value)
 
 

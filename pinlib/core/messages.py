@@ -176,6 +176,10 @@ SUPPLY_MAX_BELOW_MIN = "supply max {max} is below min {min}"
 SUPPLY_MIN_NOT_POSITIVE = "the supply min must be above 0 V"
 EDGE_TIME_NOT_POSITIVE = "an edge time of 0 s or less"
 BRIDGE_BOTH_SIDES = "a bridging part describes both sides, [sides.a] and [sides.b]"
+DELAY_FASTER_THAN_LIGHT = ("a delay per length shorter than light's in vacuum (1/c, "
+                           "3.3356 ns/m): no line carries a signal faster")
+CABLE_Z0_IMPOSSIBLE = ("a cable class's impedance of {z0} ({how}) is one no line has: "
+                       "expected {low} to {high}")
 CABLE_NEEDS_TWO_OF_THREE = ("a cable class gives its capacitance per length, or two of "
                             "capacitance, delay and impedance (each above zero)")
 # values.py
@@ -327,6 +331,10 @@ SERIES_RESISTOR_ON_LINE = ("series_resistor of an SPI or GPIO bus belongs on a l
 SWITCHED_NOT_CHECKED = ("the power-off check is made on I2C and SMBus buses only; leave "
                         "switched out")
 CAPACITANCE_ZERO_WITH_DELAY = "a stretch with a delay per length needs a capacitance above 0"
+LINE_Z0_IMPOSSIBLE = ("the delay and capacitance per length give an impedance of {z0} "
+                      "(delay / capacitance), which no board trace or cable has")
+LINE_Z0_EXPECTED = ("delay / capacitance between {low} and {high}: at {delay} "
+                    "a capacitance of {c_low} to {c_high}")
 IMPEDANCE_IS_DELAY_OVER_C = ("its impedance is delay / capacitance: a line of no capacitance "
                              "and a delay would have an infinite one")
 LINE_PULLUP_NOT_GPIO = "only a GPIO or SPI line takes a pullup"

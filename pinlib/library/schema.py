@@ -108,8 +108,11 @@ Voltage = _q("V", -50.0, 50.0, signed=True)
 Resistance = _q("Ω", 0.0, 100e6)
 Time = _q("s", 0.0, 10.0)
 Frequency = _q("Hz", 0.0, 100e9)
+#: The delay of light in vacuum per metre, 1/c (c = 299,792,458 m/s, exact by the SI's
+#: definition of the metre): no line's delay per length is shorter.
+DELAY_MIN = 1.0 / 299_792_458.0
 CapPerLength = _q("F/m", 0.0, 1e-6)
-DelayPerLength = _q("s/m", 1e-9, 1e-6)
+DelayPerLength = _q("s/m", DELAY_MIN, 1e-6)
 Level = Annotated[Sourced, Convert(threshold_parser())]
 #: The lowest supply a part may state, as the lowest rail a design may set
 #: (pinlib.model.design.raw.SUPPLY_MIN takes it from here): no logic rail runs below
@@ -311,6 +314,34 @@ class Provenance(Record):
     by: str | None = None
 
 
+#: The characteristic impedance a line can have, in ohms.  On a lossless line Z0 =
+#: delay / capacitance per length (Z0 = sqrt(L'/C'), tpd = sqrt(L'C')), and on a TEM
+#: line Z0 = (eta0 / sqrt(er)) x a factor of the cross-section alone (eta0 = 376.73 Ω,
+#: the impedance of free space).  Board traces and cables lie between about 5 Ω (a wide
+#: trace over a thin dielectric) and about 600 Ω (an open two-wire line, a wire high
+#: above its return: 60 ln(4h/d) Ω).  1 kΩ needs a wire in air 1.7 x 10^7 of its
+#: diameters above its return (0.1 mm at 430 m), 1 Ω a plane pair in FR-4 180 times as
+#: wide as it is thick (18 mm over 0.1 mm): a power plane, not a signal's line.  Per-length
+#: values whose ratio lies outside are refused as physically impossible (a capacitance
+#: typed in fF/cm for pF/cm gives 50 MΩ).  (From the lossless-line relations and the
+#: handbook TEM formulas for the plane pair and the wire above a plane.)
+LINE_Z0_MIN = 1.0
+LINE_Z0_MAX = 1000.0
+
+
+def line_z0_problem(delay: float, capacitance: float) -> str | None:
+    """The expected text when ``delay / capacitance`` (per length, SI) is no line's
+    impedance, else None; the capacitance per length that would fit that delay."""
+    z0 = delay / capacitance
+    if LINE_Z0_MIN <= z0 <= LINE_Z0_MAX:
+        return None
+    return M.LINE_Z0_EXPECTED.format(
+        low=format_si(LINE_Z0_MIN, "Ω"), high=format_si(LINE_Z0_MAX, "Ω"),
+        delay=format_si(delay * 1e-2, "s") + "/cm",  # the design's own unit
+        c_low=format_si(delay / LINE_Z0_MAX * 1e-2, "F") + "/cm",
+        c_high=format_si(delay / LINE_Z0_MIN * 1e-2, "F") + "/cm")
+
+
 class LinePerLength(Record):
     """A cable or interconnect class, per length: capacitance (per conductor to its
     return), delay and impedance.
@@ -329,8 +360,10 @@ class LinePerLength(Record):
     def _two_of_three(self):
         c, d, z = self.capacitance, self.delay, self.impedance
         given = [x for x in (c, d, z) if x is not None]
-        if len(given) == 3 or (c is not None and len(given) == 1):
+        if c is not None and len(given) == 1:
             return self  # capacitance alone serves the bus engines (no delay, no Z0)
+        if len(given) == 3:
+            return self._possible(given)
         if len(given) < 2 or (z is not None and not z.value > 0) or \
                 (c is not None and not c.value > 0):
             raise Involving(M.CABLE_NEEDS_TWO_OF_THREE, ("capacitance", "delay", "impedance"))
@@ -346,6 +379,22 @@ class LinePerLength(Record):
         derived = Sourced(value, unit, format_si(value, unit), "derived",
                           f"{how} (lossless line)")
         object.__setattr__(self, field, derived)
+        return self._possible(given)
+
+    def _possible(self, given):
+        """Refuse an impedance no line has (:data:`LINE_Z0_MIN` to :data:`LINE_Z0_MAX`):
+        the stated or derived one, and delay / capacitance where all three are given."""
+        d, c, z = self.delay, self.capacitance, self.impedance
+        if d.value < DELAY_MIN:  # derived (impedance x capacitance): a given one is ranged
+            raise Involving(M.DELAY_FASTER_THAN_LIGHT, ("capacitance", "impedance"))
+        for z0, how in ((z.value, "delay / capacitance" if z.derived else "as given"),
+                        (d.value / c.value, "delay / capacitance")):
+            if not LINE_Z0_MIN <= z0 <= LINE_Z0_MAX:
+                raise Involving(M.CABLE_Z0_IMPOSSIBLE.format(
+                    z0=format_si(z0, "Ω"), how=how, low=format_si(LINE_Z0_MIN, "Ω"),
+                    high=format_si(LINE_Z0_MAX, "Ω")),
+                    tuple(f for f, x in (("capacitance", c), ("delay", d), ("impedance", z))
+                          if any(x is g for g in given)))
         return self
 
 

@@ -13,6 +13,8 @@ less than linearly, 1/k quadratically.  The inputs (invented test data):
   a branch of a routed star (four branch lengths, repeated: equal branches share a solve);
   and 16 -> 32 on a star whose branches all differ (every driver its own solve over a
   tree of all the others: about N² node-records, printed without a target);
+* peripherals of an SPI bus on 1 km lines, with the peak of traced memory (1 = bounded);
+* the cable of a routed SCLK with centimetre stubs, 3 m -> 30 m;
 * Monte Carlo boards, with the peak of traced memory as well (1 = bounded).
 
 The push-pull engine checks every driver into the pins of every other device, so the
@@ -128,6 +130,77 @@ lines.cipo = {cipo}
 """)
 
 
+def _spi_km(n: int) -> str:
+    """An SPI bus of ``n`` peripherals with every line 1 km long, all at the far end (a
+    fuzz audit's: each driver's edge a record of 400,000 samples)."""
+    devices = "".join(f'  {{ ref = "P{i}", part = "nor-flash-spi" }},\n' for i in range(n))
+    line = '{ length = "1000 m", geometry = "g" }'
+    return _design(f"""
+[[bus]]
+id = "s"
+protocol = "spi"
+clock = "20 MHz"
+supply = "3.3 V"
+devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
+{devices}]
+lines.sclk = {line}
+lines.copi = {line}
+lines.cipo = {line}
+lines.cs = {line}
+""")
+
+
+def _route_cable(metres: float) -> str:
+    """A routed SCLK with stubs of 1 and 2 cm and 13 cm of trace before ``metres`` of
+    cable (a fuzz audit's: the stubs' delays set the march's runs over a record the
+    cable's delay sets)."""
+    cable = 'capacitance = "1 pF/cm", delay = "60 ps/cm"'
+    return _design(f"""
+[[bus]]
+id = "s"
+protocol = "spi"
+clock = "1 MHz"
+supply = "3.3 V"
+devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
+  {{ ref = "U2", part = "nor-flash-spi" }},
+  {{ ref = "U3", part = "nor-flash-spi" }},
+  {{ ref = "U4", part = "nor-flash-spi" }},
+]
+lines.sclk = {{ series_resistor = "auto", route = [
+  {{ from = "U1", to = "T1", length = "2 cm", geometry = "g" }},
+  {{ from = "T1", to = "U2", length = "1 cm", geometry = "g" }},
+  {{ from = "T1", to = "U3", length = "13 cm", geometry = "g" }},
+  {{ from = "U3", to = "U4", length = "{metres:g} m", {cable} }},
+] }}
+lines.cipo = {{ length = "3 cm", geometry = "g" }}
+""")
+
+
+def _memory(name: str, small: str, large: str, k: int, tmp: Path) -> Result:
+    """Time and peak traced memory of an input k times larger (1 = bounded memory)."""
+    a, b = tmp / f"{name}-small.toml", tmp / f"{name}-large.toml"
+    a.write_text(small, encoding="utf-8")
+    b.write_text(large, encoding="utf-8")
+    _load_and_check(a)  # imports, library, fits
+
+    def measure(path):
+        tracemalloc.start()
+        start = time.perf_counter()
+        _load_and_check(path)
+        took = time.perf_counter() - start
+        peak = tracemalloc.get_traced_memory()[1]
+        tracemalloc.stop()
+        return took, peak
+
+    t_small, m_small = measure(a)
+    t_large, m_large = measure(b)
+    return Result(name, t_large, _baseline_name(k, t_small, "size"), linear_cost(k, t_small),
+                  extra=[f"peak traced memory {m_large / 2**20:.0f} MB against "
+                         f"{m_small / 2**20:.0f} MB ({m_large / m_small:.2f}x; 1 = bounded)"])
+
+
 def _long_string(length: int) -> str:
     body = _i2c(2).split('er = 4.2\n', 1)[1]
     return _design(body, description='"' + "a" * length + '"')
@@ -218,6 +291,14 @@ def run(repeats: int = 3, quick: bool = False) -> list[Result]:
         out.append(_scaling("SPI line: 32 sections, alternating impedance",
                             _spi(2, 8, True), _spi(2, 32, True), 4, tmp, repeats,
                             linear=False))
+        # every peripheral's edges on 1 km lines share one record (was one each: 2.6 GB
+        # at 200); printed without a target, with the peak memory
+        out.append(_memory(f"SPI bus: {255 // s} peripherals on 1 km lines",
+                           _spi_km(31 // s), _spi_km(255 // s), 8, tmp))
+        # the cable 10x as long: a record 10x as long over the same stubs (marched in
+        # blocks where its runs would be a step or two: 20-45 s a check before)
+        out.append(_scaling("SPI route: 1 cm stub beside 30 m of cable",
+                            _route_cable(3), _route_cable(30), 10, tmp, repeats))
         # above whatif.SENSITIVITY_BOARDS (100,000), whose draws a run keeps
         out.append(_monte_carlo(tmp, 120_000 if quick else 200_000, 4))
     return out

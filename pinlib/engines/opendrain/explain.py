@@ -91,10 +91,14 @@ def _no_fit_advice(lim: OpenDrainLimits, seg_in: SegmentInputs, ln: LineInputs) 
         # this segment's own sinks cannot meet its Rp(max), the translator aside: the
         # advice of a single segment, with the Rp(min) across the translator beside it
         rp_min, weakest, label = own
+        across = (f"with them {_f(ln.rp_min, 'Ω')}" if math.isfinite(ln.rp_min) else
+                  # an infinite Rp(min): no number to give
+                  "with them no pull-up works: the sinks cannot carry the current of the "
+                  "pull-ups across the translator")
         tips.append(f"no resistor fits: Rp(max) {_f(ln.rp_max, 'Ω')} at Cb {_f(ln.cb, 'F')} "
                     f"is below Rp(min) {_f(rp_min, 'Ω')} of this segment's own sinks (weakest "
-                    f"{label}), before the pull-ups across the translator (with them "
-                    f"{_f(ln.rp_min, 'Ω')}); the pull-up is a compromise")
+                    f"{label}), before the pull-ups across the translator ({across}); the "
+                    "pull-up is a compromise")
     elif not math.isfinite(rp_min):
         if seg_in.blocked_by:
             tips.append(f"the weakest sink ({label}) cannot even carry the current of the "
@@ -119,6 +123,15 @@ def _no_fit_advice(lim: OpenDrainLimits, seg_in: SegmentInputs, ln: LineInputs) 
         return tips
     eff_lo = rp_min / (1 - tol)
     cb_lim = float(pu.cb_limit(lim.tr_max, rp_min, tol, ln.rise_factor))
+    if not ln.cb <= FAR_BEYOND_CB * cb_lim:
+        # the sink, not the load, is what is wrong (a 3 nA rating allows 340 aF): cutting
+        # the load thousands of times, or as many buffer segments, would read as advice
+        tips.append(f"at that Rp(min) only a Cb under {_f(cb_lim, 'F')} rises in time, "
+                    f"{_ratio(ln.cb, cb_lim)} times less than {_f(ln.cb, 'F')}: no shorter "
+                    "trace, buffer or active pull-up makes up for so weak a sink; check its "
+                    "i_ol, or use a stronger driver")
+        tips.extend(_sink_advice(v_max, ln, tol, weakest))
+        return tips
     tips.append(f"bring Cb below {_f(cb_lim, 'F')} (now {_f(ln.cb, 'F')}: "
                 f"{_f(ln.cb - cb_lim, 'F')} less: shorter traces or cable, fewer loads)")
     lower = lim.lower()
@@ -140,12 +153,23 @@ def _no_fit_advice(lim: OpenDrainLimits, seg_in: SegmentInputs, ln: LineInputs) 
     ok_cs = "" if i_cs < i_weak else f" — more than the weakest sink's {_f(i_weak, 'A')}"
     tips.append(f"an active (current-source) pull-up of at least {_f(i_cs, 'A')} "
                 f"(UM10204 rev. 6 §5.1){ok_cs}")
-    if weakest is not None:
-        d = weakest
-        i_need = float(pu.sink_current_needed(v_max, float(d.v_ol[1]), ln.rp_max, tol))
-        tips.append(f"drivers sinking at least {_f(i_need, 'A')} at {_f(float(d.v_ol[1]), 'V')} "
-                    f"(the weakest, {d.tap.label}, is rated {_f(d.i_ol, 'A')})")
-    return tips
+    return tips + _sink_advice(v_max, ln, tol, weakest)
+
+
+def _sink_advice(v_max: float, ln: LineInputs, tol: float, weakest) -> list[str]:
+    """The sink current that would open the window at Rp(max), against the weakest's."""
+    if weakest is None:
+        return []
+    d = weakest
+    i_need = float(pu.sink_current_needed(v_max, float(d.v_ol[1]), ln.rp_max, tol))
+    return [f"drivers sinking at least {_f(i_need, 'A')} at {_f(float(d.v_ol[1]), 'V')} "
+            f"(the weakest, {d.tap.label}, is rated {_f(d.i_ol, 'A')})"]
+
+
+def _ratio(big: float, small: float) -> str:
+    """``big / small`` as a count a person reads (no infinity: "over a billion")."""
+    r = big / small if small > 0 else math.inf
+    return f"{r:,.0f}" if r < 1e9 else "over a billion"
 
 
 #: A bus capacitance this many times its mode's limit gets no sizing advice, only the

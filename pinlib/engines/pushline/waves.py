@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import functools
 import math
 import warnings
 from collections.abc import Sequence
@@ -70,20 +69,20 @@ class EdgeWave:
 
     def crossing(self, level: float) -> float:
         """First time the edge reaches ``level`` in its direction; NaN if never. [s]"""
-        got = None if self.key is None else memo.held(
-            crossing_key(self.key, self.v_from, self.v_to, self.edge, level))
-        if got is None:
-            got = float(wf.threshold_delay(self.t, self.v, level, edge=self.edge))
-        return got
+        if self.key is None:
+            return float(wf.threshold_delay(self.t, self.v, level, edge=self.edge))
+        return memo.remember(
+            crossing_key(self.key, self.v_from, self.v_to, self.edge, level),
+            lambda: float(wf.threshold_delay(self.t, self.v, level, edge=self.edge)))
 
     def recrossings(self, v_il: float, v_ih: float) -> wf.Recrossings:
         """Re-crossings of VIL / VIH after the edge (:func:`pinlib.physics.waveform.
         recrossings`)."""
-        got = None if self.key is None else memo.held(
-            recrossings_key(self.key, self.v_from, self.v_to, self.edge, v_il, v_ih))
-        if got is None:
-            got = wf.recrossings(self.t, self.v, v_il, v_ih, edge=self.edge)
-        return got
+        if self.key is None:
+            return wf.recrossings(self.t, self.v, v_il, v_ih, edge=self.edge)
+        return memo.remember(
+            recrossings_key(self.key, self.v_from, self.v_to, self.edge, v_il, v_ih),
+            lambda: wf.recrossings(self.t, self.v, v_il, v_ih, edge=self.edge))
 
 
 class _TooManySteps(InputError):
@@ -174,13 +173,15 @@ def simulate_edge(stretches: Sequence[Stretch], r_source: float, t_ramp: float,
     key = unit_edge_key(stretches, r_source, t_ramp, c_far, distributed)
     t, unit, settled = memo.remember(
         key, lambda: _unit_edge(stretches, r_source, t_ramp, c_far, distributed))
-    swing = v_to - v_from
     # a batched study may have read them off its batch (batchfigures); else computed here
-    figs = memo.held(figures_key(key, v_from, v_to))
+    # and kept, and the record itself is not: every driver of a line whose loads are the
+    # same shares the one unit response (a bus of 255 peripherals on 1 km lines had kept
+    # a 400,000-sample record per driver and edge, 2.6 GB at 200)
+    fkey = figures_key(key, v_from, v_to)
+    figs = memo.held(fkey)
     if figs is None:
-        v = v_from + swing * unit
-        return EdgeWave(edge, t.copy(), v, v_from, v_to, *_figures(t, v, v_from, v_to),
-                        bool(settled), key)
+        figs = _figures(t, v_from + (v_to - v_from) * unit, v_from, v_to)
+        memo.keep(fkey, figs)
     return UnitEdgeWave(edge, (t, unit), v_from, v_to, *figs, bool(settled), key)
 
 
@@ -198,12 +199,18 @@ class UnitEdgeWave(EdgeWave):
                             ("key", key), ("_unit", unit)):
             object.__setattr__(self, name, value)
 
-    @functools.cached_property
+    @property
     def t(self) -> np.ndarray:
-        return self._unit[0].copy()
+        """The shared grid, read-only (no copy per edge). [s]"""
+        t = self._unit[0].view()
+        t.flags.writeable = False
+        return t
 
-    @functools.cached_property
+    @property
     def v(self) -> np.ndarray:
+        """The record, made from the unit response on each read and not kept: an edge
+        holds no array of its own (its figures, crossings and re-crossings are kept in
+        the run's memo). [V]"""
         return self.v_from + (self.v_to - self.v_from) * self._unit[1]
 
 

@@ -11,7 +11,7 @@ from pinlib.core.errors import DesignError
 from pinlib.core.quantity import format_si, parse, range_text
 from pinlib.core.records import Convert, Record, Rule, WrittenAs, field
 from pinlib.core.worklimits import MAX_ROUTE_STRETCHES
-from pinlib.library.schema import LOWEST_RAIL
+from pinlib.library.schema import DELAY_MIN, LOWEST_RAIL
 
 FORMAT = "pinlib.design/1"
 PROTOCOLS = protocols.NAMES
@@ -125,7 +125,7 @@ Tolerance = _unit("%", 0.0, 0.5)
 Dimension = _unit("m", 10e-6, 0.1)
 Thickness = _unit("m", 0.0, 1e-3)
 CapPerLength = _unit("F/m", 0.0, 1e-6)
-DelayPerLength = _unit("s/m", 1e-9, 1e-6)
+DelayPerLength = _unit("s/m", DELAY_MIN, 1e-6, low_problem=M.DELAY_FASTER_THAN_LIGHT)
 PullupSetting = _auto_or("Ω", 1e-3, 1e9, words=("auto",))
 Pullup = _unit("Ω", 1e-3, 1e9)
 SeriesSetting = _auto_or("Ω", 0.0, 1e6, words=("auto", "none"))

@@ -15,7 +15,7 @@ from pinlib.core.worklimits import (
     MAX_SECTIONS_PER_LINE,
 )
 from pinlib.library.loader import Library
-from pinlib.library.schema import Part
+from pinlib.library.schema import Part, line_z0_problem
 from pinlib.model.design.objects import Cable, Device, Geometry, Section
 from pinlib.model.design.raw import RawDesign, RawDevice, RawSection, RawTrace
 
@@ -133,6 +133,13 @@ class _Resolver:
                       expected=f"more than 0 and at most {format_si(1e-6, 'F/m')} beside "
                                "a delay, e.g. capacitance = \"1 pF/cm\"",
                       hint=M.IMPEDANCE_IS_DELAY_OVER_C)
+        if t.delay is not None and line_z0_problem(t.delay, t.capacitance) is not None:
+            # a capacitance typed in fF/cm for pF/cm: a 50 MΩ line, whose time grid no
+            # solve can hold (the solver then blamed the length)
+            raise err(M.LINE_Z0_IMPOSSIBLE.format(
+                z0=format_si(t.delay / t.capacitance, "Ω")), loc + ("capacitance",),
+                value=format_si(t.capacitance * 1e-2, "F") + "/cm",
+                expected=line_z0_problem(t.delay, t.capacitance))
         return (Section(t.length, None, t.capacitance, t.delay, loc=tuple(loc)),)
 
     def _cable_section(self, t: RawTrace | RawSection, loc) -> Section:

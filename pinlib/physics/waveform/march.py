@@ -25,8 +25,12 @@ and run (``_run_matrix``): seven numpy calls a run instead of 25-35, where those
 calls' fixed cost, not the arithmetic, is the time.  Several such cases of one shape
 (nodes, ports, delays, run) march in lockstep (:func:`march_cases`), each run's
 products one stacked call whose members numpy computes as it would alone: each record
-is the single march's to the last bit, for about the calls of one.  A delay that is not
-a whole number of steps reads the launched wave by linear interpolation.
+is the single march's to the last bit, for about the calls of one.  A single case whose
+runs would be a step or two over a long record (a short stub on a grid the record's
+length coarsened) is marched in blocks longer than its shortest delay instead, each a
+linear map (:mod:`pinlib.physics.waveform.blockmarch`; the same numbers to rounding).
+A delay that is not a whole number of steps reads the launched wave by linear
+interpolation.
 
 Layout inside: a batch marches time-major, ``(time, node or port, batch)``: a run of
 the record is one contiguous slab, summed in the returned array itself, and the
@@ -45,6 +49,7 @@ import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, ValidityWarning
+from pinlib.physics.waveform.blockmarch import chosen_block, march_blocked
 
 __all__: list[str] = []
 
@@ -380,6 +385,10 @@ def march(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
     n_ports = net.port_node.size
     # one case on short runs, its launched waves kept whole (else the ring below)
     if n_b == 1 and n_ports and block <= _SINGLE_BLOCK:
+        # runs of a step or two over a long record: the state-space blocks
+        blocked = chosen_block(net, n_t, block)
+        if blocked is not None:
+            return march_blocked(net, v_src, n_t, blocked)
         return _march_single(net, v_src, n_t)
     src, a, g_src = net.source, net.a, net.g_source
     two_g = 2.0 * net.port_g[None]                                      # (1, P, B)
