@@ -1013,3 +1013,40 @@ def test_monte_carlo_counts_the_boards_a_check_is_absent_from(monkeypatch):
     assert cells[1] == "100.00% (absent from 40 boards)"
     # every other check is on every board
     assert all(c.absent == 0 for c in mc.checks if c.id != "sink-current")
+
+
+def test_corners_evaluate_each_distinct_corner_once_however_many_checks(monkeypatch,
+                                                                       tmp_path):
+    # invented: the demo's flash bus with 40 more flashes on it: some 1,300 checks, a
+    # handful of parameters. Each check's worst corner was evaluated as a board of its
+    # own (and flipped k times): 255 devices took 5.2 GB and 19 s, boards x checks.
+    # Now each distinct corner is one board, read by every check whose worst it is
+    from pinlib.studies.whatif import cornersearch
+
+    text = DEMO.read_text(encoding="utf-8")
+    extra = "".join(f'  {{ ref = "X{i}", part = "nor-flash-spi" }},\n' for i in range(40))
+    text = text.replace('  { ref = "U7", part = "nor-flash-spi" },\n',
+                        '  { ref = "U7", part = "nor-flash-spi" },\n' + extra, 1)
+    path = tmp_path / "many.toml"
+    path.write_text(text, encoding="utf-8")
+    design = load_design(path)
+    flash = next(b for b in design.buses if b.id == "flash")
+    assert len(flash.devices) == 42
+    sizes = []
+    made = cornersearch._runner
+
+    def counting(bus, *args):
+        run = made(bus, *args)
+
+        def counted(u):
+            if bus.id == "flash":
+                sizes.append(len(u))
+            return run(u)
+        return counted
+
+    monkeypatch.setattr(cornersearch, "_runner", counting)
+    res = whatif.corners(design)
+    k = len(res.parameters["flash"])
+    checks = sum(1 for c in res.checks if c.bus == "flash")
+    assert checks > 40 * k  # many more checks than corners
+    assert max(sizes) <= 2 ** k * (k + 1), (max(sizes), k, checks)

@@ -243,14 +243,18 @@ def _bus_checks(bus, run, worst: np.ndarray, params: list[Parameter],
     """Each check of one bus at its worst corner (``worst``), with the parameters that
     set it."""
     k = len(params)
-    bb_w = run(worst)
+    # each distinct corner once (many checks share one: a bus of 255 devices had 7,664
+    # checks and as many boards, each with every check), check j read at board at[j]
+    boards, at = _distinct(worst)
+    bb_w = run(boards)
     names = _names(bus, bb_w, nominal)
     checks = [c for _, c in bb_w.checks()]
-    gains = _gains(run, worst, k, len(checks))
+    gains = _gains(run, boards, at, k, len(checks), _key(_margins(bb_w)))
     out = []
     for j, (nm, c) in enumerate(zip(names, checks, strict=True)):
         ec = nm["engine"]
-        if c.margin is not None and _absent(c)[j] and ec is not None:
+        b = int(at[j])
+        if c.margin is not None and _absent(c)[b] and ec is not None:
             # on no board searched: the check as designed, at no corner
             out.append(CornerCheck(
                 nm["name"], bus.id, nm["segment"], c.signal, c.id, c.unit, ec.source,
@@ -260,20 +264,27 @@ def _bus_checks(bus, run, worst: np.ndarray, params: list[Parameter],
         corner = []
         for i in np.argsort(-gains[j]) if k else []:
             g = gains[j, i]
-            here = float(_margin(c, j))
+            here = float(_margin(c, b))
             if math.isfinite(g) and abs(g) > 1e-9 * max(
                     1.0, abs(here) if math.isfinite(here) else 1.0):
                 corner.append((params[i].name, "+" if worst[j, i] > 0 else "−", float(g)))
         out.append(CornerCheck(
             nm["name"], bus.id, nm["segment"], c.signal, c.id, c.unit,
             ec.source if ec is not None else "",
-            None if c.margin is None else float(c.margin[j]),
-            None if c.value is None else float(c.value[j]),
-            None if c.limit is None else float(c.limit[j]),
-            ob.STATUS[int(c.status[j])], corner,
+            None if c.margin is None else float(c.margin[b]),
+            None if c.value is None else float(c.value[b]),
+            None if c.limit is None else float(c.limit[b]),
+            ob.STATUS[int(c.status[b])], corner,
             ec.status if ec is not None else None, ec.margin if ec is not None else None,
-            ec.margin_unit if ec is not None else None, _subject(c, j, nm["name"])))
+            ec.margin_unit if ec is not None else None, _subject(c, b, nm["name"])))
     return out
+
+
+def _distinct(worst: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The distinct corners of ``worst`` (one row a check) and, per check, the index of
+    its own among them."""
+    boards, at = np.unique(worst, axis=0, return_inverse=True)
+    return boards, at.reshape(-1)
 
 
 def _subject(c, j: int, name: str) -> str | None:
@@ -328,17 +339,21 @@ def _margin(c: ob.BatchCheck, j: int):
     return c.margin[j]
 
 
-def _gains(run, worst: np.ndarray, k: int, m: int) -> np.ndarray:
+def _gains(run, boards: np.ndarray, at: np.ndarray, k: int, m: int,
+           margins: np.ndarray) -> np.ndarray:
     """For each check j and parameter i: the margin of check j with parameter i flipped
-    at check j's worst corner, less the margin there. [1]"""
+    at check j's worst corner (``boards[at[j]]``, the distinct corners, whose margins
+    are ``margins``), less the margin there. [1]"""
     if k == 0 or m == 0:
         return np.zeros((m, k))
-    base = np.diagonal(_key(_margins(run(worst))))                # (m,)
-    flips = np.repeat(worst, k, axis=0)                           # (m*k, k)
-    idx = np.arange(m * k)
+    j = np.arange(m)
+    base = margins[at, j]                                         # (m,)
+    n = len(boards)
+    flips = np.repeat(boards, k, axis=0)                          # (n*k, k)
+    idx = np.arange(n * k)
     flips[idx, idx % k] *= -1.0
-    mg = _key(_margins(run(flips)))                              # (m*k, m)
-    own = mg[idx, idx // k].reshape(m, k)
+    mg = _key(_margins(run(flips)))                              # (n*k, m)
+    own = mg[(at[:, None] * k + np.arange(k)[None, :]), j[:, None]]  # (m, k)
     with np.errstate(invalid="ignore"):
         g = own - base[:, None]
     return np.where(np.isnan(g), 0.0, g)
@@ -355,7 +370,8 @@ def _screen(run, k: int) -> np.ndarray:
     lower = mg[0:2 * k:2] < mg[1:2 * k:2]                         # (k, m): -1 end is worse
     worst = np.where(lower.T, -1.0, 1.0)                          # (m, k)
     for _ in range(2 * k):
-        g = _gains(run, worst, k, m)
+        boards, at = _distinct(worst)
+        g = _gains(run, boards, at, k, m, _key(_margins(run(boards))))
         j_i = np.argmin(g, axis=1)
         better = g[np.arange(m), j_i] < 0
         if not better.any():
