@@ -668,16 +668,16 @@ def test_line_series_slider_never_shows_a_resistor_not_in_use(line):
     # slider kept reading "27 Ω" beside waveforms labelled "no series R"
     line.set(series="auto", length=0.28)
     assert line.figures["series_resistor"].value > 0
-    assert line.series.readout and line.series.description == "Rs (E24)"
+    assert line.series_slider.shown and line.series.description == "Rs (E24)"
     assert line.series.value == line.figures["series_resistor"].value
     line.set(length=0.03)
     assert line.figures["series_resistor"].value == 0.0
-    assert not line.series.readout and line.series.description == "Rs: none"
+    assert not line.series_slider.shown and line.series.description == "Rs: none"
     assert set(line.wave_data.traces) == {"rise, no series R", "fall, no series R"}
     line.set(series="none")
-    assert not line.series.readout
+    assert not line.series_slider.shown
     line.set(series=33.0)
-    assert line.series.readout and line.series.description == "Rs (E24)"
+    assert line.series_slider.shown and line.series.description == "Rs (E24)"
     line.set(series="auto", length=0.28)
 
 

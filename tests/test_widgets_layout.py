@@ -121,6 +121,30 @@ def test_every_control_of_a_panel_is_in_its_widget_tree(panels, name):
     assert not missing
 
 
+@pytest.mark.parametrize("name", ["BusBuilder", "LineExplorer", "CrosstalkExplorer"])
+def test_no_slider_readout_can_be_typed_into(panels, name):
+    """A selection slider's own readout takes typed text ("150") and ignores it while it
+    goes on showing it: every slider shows its value as a label instead."""
+    panel = panels[name]
+    sliders = [w for w in _tree(panel.widget) if isinstance(w, W.SelectionSlider)]
+    assert sliders
+    assert [s.description for s in sliders if s.readout] == []
+    labels = {w.value for w in _tree(panel.widget) if isinstance(w, W.HTML)
+              and "pinlib-readout" in w._dom_classes}
+    for s in sliders:
+        shown = dict((v, label) for label, v in s.options)[s.value]
+        assert s.disabled or any(f">{html.escape(shown)}<" in v for v in labels), s.description
+
+
+def test_a_slider_label_follows_its_value(panels):
+    xt = panels["CrosstalkExplorer"]
+    slider = xt.sliders["Spacing"]
+    # invented test input: a spacing on the slider's list
+    xt.set(spacing=0.2e-3)
+    assert slider.text == "200 µm"
+    xt.set(spacing=xt.coupling.spacing)
+
+
 def test_hiding_the_unused_trace_fields_hides_nothing_else(library):
     b = BusBuilder(library, peripherals=["eeprom-i2c"])
     b.set(geometry="per-length")

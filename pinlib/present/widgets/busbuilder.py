@@ -26,6 +26,7 @@ from pinlib.present.widgets.choices import choice_line, with_button_below
 from pinlib.present.widgets.common import (
     ChartView,
     QuantityField,
+    Slider,
     StaticView,
     _closest_option,
     _e24_options,
@@ -245,9 +246,8 @@ class BusBuilder(_Panel):
                                            description="Choose Rp",
                                            style=style(button_width="72px"),
                                         layout=toggle_layout())
-        self.pullup = W.SelectionSlider(options=_e24_options(100.0, 100e3), value=4700.0,
-                                        description="Rp (E24)", continuous_update=False,
-                                        style=style(), layout=field_layout())
+        self.pullup_slider = Slider("Rp (E24)", _e24_options(100.0, 100e3), 4700.0)
+        self.pullup = self.pullup_slider.control
         self.pullup_tolerance = q(QuantityField("pullup_tolerance", "Rp ±", "%", 0.01,
                                                 lo=0.0, hi=0.2, placeholder="1 %"))
 
@@ -710,7 +710,7 @@ class BusBuilder(_Panel):
             self.pick_fit, self.pick_note,
             with_button_below(self.placed, self.remove_button),
             heading("Trace"), self.trace.box, self.extra_capacitance.box,
-            heading("Pull-up"), self.pullup_mode, self.pullup, self.pullup_tolerance.box,
+            heading("Pull-up"), self.pullup_mode, self.pullup_slider.box, self.pullup_tolerance.box,
             heading("Bench: a measured rise"),
             with_button_below(self.bench_file, self.bench_load), self.bench_file_error,
             self.bench_line, choice_line(self.bench_line), self.bench_line_note,

@@ -15,11 +15,11 @@ from pinlib.model.design import Aggressor, load_design
 from pinlib.present import charts, plotdata
 from pinlib.present.widgets.common import (
     ChartView,
+    Slider,
     StaticView,
     _closest_option,
     _Panel,
     block_layout,
-    field_layout,
     find_file,
     heading,
     style,
@@ -112,6 +112,7 @@ class CrosstalkExplorer(_Panel):
         self.figures: dict = {}
         self.sweep = self.waves = None
         c = self.coupling
+        self.sliders: dict[str, Slider] = {}  # by label
         self.spacing = self._slider("Spacing", _options(SPACINGS, "m", c.spacing), c.spacing)
         self.length = self._slider("Parallel length", _options(LENGTHS, "m", c.length),
                                    c.length)
@@ -136,9 +137,9 @@ class CrosstalkExplorer(_Panel):
         self._show(first)
 
     def _slider(self, label: str, options, value) -> W.SelectionSlider:
-        return W.SelectionSlider(options=options, value=value, description=label,
-                                 continuous_update=False, style=style(),
-                                 layout=field_layout())
+        slider = Slider(label, options, value)
+        self.sliders[label] = slider
+        return slider.control
 
     def _set_slider(self, name: str, value) -> None:
         slider = getattr(self, name)
@@ -231,8 +232,9 @@ class CrosstalkExplorer(_Panel):
                           + waves + self.figures_html.value + self.checks_html.value)
 
     def _layout(self) -> W.Widget:
-        controls = [heading("The run"), self.spacing, self.length,
-                    heading("The aggressor"), self.edge_time,
+        box = {label: s.box for label, s in self.sliders.items()}
+        controls = [heading("The run"), box["Spacing"], box["Parallel length"],
+                    heading("The aggressor"), box["Aggressor edge"],
                     heading("Waveforms"), self.show]
         outputs = [self.held_html, self.status_html, self.noise_chart.widget,
                    *(v.widget for v in self.wave_charts.values()), self.figures_html,

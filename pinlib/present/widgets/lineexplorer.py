@@ -19,6 +19,7 @@ from pinlib.present.widgets.choices import choice_line, with_button_below
 from pinlib.present.widgets.common import (
     ChartView,
     QuantityField,
+    Slider,
     StaticView,
     _closest_option,
     _e24_options,
@@ -145,9 +146,8 @@ class LineExplorer(_Panel):
                                            description="Series R",
                                            style=style(button_width="64px"),
                                         layout=toggle_layout())
-        self.series = W.SelectionSlider(options=_e24_options(1.0, 1000.0), value=33.0,
-                                        description="Rs (E24)", continuous_update=False,
-                                        style=style(), layout=field_layout())
+        self.series_slider = Slider("Rs (E24)", _e24_options(1.0, 1000.0), 33.0)
+        self.series = self.series_slider.control
         self.placement = W.ToggleButtons(options=["far end", "daisy chain"], value=placement
                                          if placement in ("far end", "daisy chain")
                                          else "far end", description="Receivers at",
@@ -363,7 +363,7 @@ class LineExplorer(_Panel):
         self.series.disabled = mode != "fixed"
         rs = self.figures.get("series_resistor")
         used = mode == "fixed" or (mode == "auto" and rs is not None and bool(rs.value))
-        self.series.readout = used
+        self.series_slider.shown = used
         self.series.description = "Rs (E24)" if used else "Rs: none"
         if mode == "auto" and used:
             with self._hold():
@@ -408,7 +408,7 @@ class LineExplorer(_Panel):
             choice_line(self.pick), self.pick_note,
             with_button_below(self.placed, self.remove_button), self.placed_note,
             heading("Trace"), self.trace.box,
-            heading("Termination"), self.series_mode, self.series,
+            heading("Termination"), self.series_mode, self.series_slider.box,
             heading("Placement"), self.placement, self.receiver_view,
             choice_line(self.receiver_view),
         ]
