@@ -84,3 +84,33 @@ def test_write_shows_what_the_part_lacks_to_stand_on_a_bus(tmp_path, ibs):
     assert panel.write() == tmp_path / "team" / "demo-sda.toml"
     shown = panel.message.value
     assert "created" in shown and "warning:" in shown and "i2c-scl" in shown
+
+
+def test_a_read_after_a_refused_one_chooses_the_component_and_clears_the_message(tmp_path,
+                                                                                  ibs):
+    panel = IbisImporter(tmp_path / "team")
+    panel.set(file=str(tmp_path / "nope.ibs"))
+    assert "file not found" in panel.message.value
+    panel.set(file=str(ibs))
+    # invented test input: the model's only component
+    assert panel.component.value == "DEMO-IO" and set(panel.pins) == {"SDA", "SCL"}
+    assert "file not found" not in panel.message.value and "read" in panel.message.value
+    assert panel.preview() is not None and "no such component" not in panel.message.value
+
+
+def test_messages_name_the_panels_fields_not_the_commands_options(tmp_path, ibs):
+    team = tmp_path / "team"
+    panel = IbisImporter(team).set(file=str(ibs), component="DEMO-IO", id="demo-x",
+                                   category="memory")
+    assert panel.write() == team / "demo-x.toml"
+    assert panel.write() is None
+    shown = panel.message.value
+    assert "a part with this id exists" in shown and "choose another Part id" in shown
+    assert "--" not in shown and "field <code>Part id</code>" in shown
+    panel.component.options = ["DEMO-IO", "NOT-THERE"]  # invented: a stale choice
+    panel.component.value = "NOT-THERE"
+    assert panel.preview() is None
+    assert "field <code>Component</code>" in panel.message.value
+    assert "--" not in panel.message.value
+    panel.component.value = "DEMO-IO"  # a new choice: the old refusal goes
+    assert "no such component" not in panel.message.value

@@ -13,7 +13,9 @@ into the built-in library).  Nothing here computes a value.
 
 from __future__ import annotations
 
+import copy
 import os
+import re
 from pathlib import Path
 
 import ipywidgets as W
@@ -48,6 +50,28 @@ from pinlib.present.widgets.markup import (
 #: The choice of a pin that is not imported.
 SKIP = "(not imported)"
 _WIDTH = "400px"
+
+#: The panel's label of each field the import names as the command's option (or as the
+#: part file's key): a message here names what the user sees.
+_LABELS = {"--component": "Component", "--category": "Category", "--pin": "pin functions",
+           "--id": "Part id", "id": "Part id", "--i-ol": "i_ol", "--into": "team folder"}
+#: Hints written for the command, as the panel says them.
+_HINTS = {"choose another id with --id": "choose another Part id",
+          "name a team library folder with --into":
+              "the part is written into the panel's team folder; open the panel on "
+              "another folder"}
+
+
+def for_panel(err: PinlibError) -> PinlibError:
+    """``err`` naming the panel's fields by their labels ("Component", "Part id"), never
+    by the command's options ("--component", "--id")."""
+    err = copy.copy(err)
+    err.field = _LABELS.get(err.field, err.field)
+    if err.hint:
+        hint = _HINTS.get(err.hint, err.hint)
+        err.hint = re.sub(r"--[a-z][a-z-]*", lambda m: _LABELS.get(m.group(0), m.group(0)),
+                          hint)
+    return err
 
 
 def _s() -> dict:
@@ -86,6 +110,7 @@ class IbisImporter(_Panel):
         self.text: str | None = None
         self.warnings: list[str] = []
         self.written: Path | None = None
+        self._read_line = ""  # what the last read said
         self.file = W.Text(placeholder="path/to/part.ibs", description="IBIS file", **_s())
         self.read_button = W.Button(description="Read the file", layout=button_layout("160px"))
         self.component = W.Dropdown(options=[], description="Component", **_s())
@@ -102,7 +127,7 @@ class IbisImporter(_Panel):
         self.read_button.on_click(lambda _b: self.read())
         self.preview_button.on_click(lambda _b: self.preview())
         self.write_button.on_click(lambda _b: self.write())
-        self.component.observe(lambda _c: self._pins_of_component(), names="value")
+        self.component.observe(lambda _c: self._component_chosen(), names="value")
         form = W.VBox([W.HBox([self.file, self.read_button]), self.component,
                        W.HTML(block("The function of each pin (guessed from its signal "
                                     "name; pins left out are not imported):")),
@@ -147,14 +172,28 @@ class IbisImporter(_Panel):
         except PinlibError as err:
             self.ibis = None
             self.component.options = []
-            self.message.value = error_html(err)
+            self._pins_of_component()
+            self.message.value = error_html(for_panel(err))
             return False
-        self.message.value = block(f"read {e(self.file.value.strip())}: IBIS "
-                                   f"{e(self.ibis.header.get('ibis ver', '?'))}, file rev "
-                                   f"{e(self.ibis.file_rev or '?')}")
-        self.component.options = list(self.ibis.components)
+        components = list(self.ibis.components)
+        self.component.options = components
+        if self.component.value not in components and components:
+            # after a refused read the list was empty and its value None: the first
+            # component is chosen, as on a first read
+            self.component.value = components[0]
+        self._read_line = block(f"read {e(self.file.value.strip())}: IBIS "
+                                f"{e(self.ibis.header.get('ibis ver', '?'))}, file rev "
+                                f"{e(self.ibis.file_rev or '?')}")
         self._pins_of_component()
+        self.message.value = self._read_line
         return True
+
+    def _component_chosen(self) -> None:
+        """Another component: its pins, and a message about the last one's preview or
+        write gone (it is no longer about what is shown)."""
+        self._pins_of_component()
+        if self.ibis is not None:
+            self.message.value = self._read_line
 
     def _pins_of_component(self) -> None:
         from pinlib.library.pinguess import guess_function
@@ -202,7 +241,7 @@ class IbisImporter(_Panel):
                                   warnings=self.warnings, **self._arguments())
         except PinlibError as err:
             self.text = None
-            self.message.value = error_html(err)
+            self.message.value = error_html(for_panel(err))
             return None
         self.message.value = "".join(block(f"warning: {e(w)}") for w in self.warnings)
         self.preview_html.value = values_table(self.text)
@@ -221,7 +260,7 @@ class IbisImporter(_Panel):
                                self.mapping(), self.new_id.value.strip(), self.folder,
                                warnings=written, **self._arguments())
         except PinlibError as err:
-            self.message.value = error_html(err)
+            self.message.value = error_html(for_panel(err))
             return None
         self.written = path
         self.warnings = [w for w in written if w not in self.warnings] + self.warnings
