@@ -794,8 +794,12 @@ def test_spi_budget_shows_a_mode_the_display_does_not_take(budget):
     assert mode["U12"].status == "fail" and mode["U1"].status == "pass"
     assert "SPI mode 1 is not one of U12" in budget.checks_html.value
     assert "FAIL" in budget.status_html.value.upper()
+    # the row shows the mode against the part's modes, and a note under the mode says it
+    assert ">mode 1<" in budget.checks_html.value and ">modes 0, 3<" in budget.checks_html.value
+    assert "SPI mode 1 is not one of U12" in budget.mode_note.value
     budget.set(clock=10e6, spi_mode=3)
     assert all(c.status == "pass" for c in budget.bus_result.checks if c.id == "spi-mode")
+    assert budget.mode_note.value == ""
 
 
 def test_spi_budget_refuses_a_design_without_that_bus():
