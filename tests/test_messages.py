@@ -3604,6 +3604,15 @@ def _(env):
     return x.path_error.value
 
 
+@case("DESIGN_PATH_IS_FOLDER")
+def _(env):
+    x = _widgets().SwapExplorer(Path(__file__).resolve().parents[1] / "workbooks" / "designs"
+                                / "demo-board.toml")
+    x.path_box.value = str(env.tmp)  # a folder where a design file belongs
+    x._load_clicked()
+    return x.path_error.value
+
+
 @case("NOT_AN_INPUT_PIN")
 def _(env):
     return _fails(lambda e: _line_explorer(e).add_receiver("eeprom-i2c", "nowhere"), env)

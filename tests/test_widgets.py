@@ -1103,6 +1103,28 @@ def test_swap_load_refuses_an_empty_path_and_says_when_results_are_old(explorer,
     assert explorer.path_error.value == "" and explorer.held_html.value == ""
 
 
+def test_load_messages_name_the_file_alike_on_01_and_05(library, explorer, tmp_path):
+    """A folder is said to be one (a .toml file expected); a missing or bad file is named,
+    on the bus builder's bench panel as on the swap panel."""
+    bad = tmp_path / "bad.toml"
+    bad.write_text("this is not TOML\n", encoding="utf-8")  # invented test input
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    cases = [(str(tmp_path), "this is a folder, not a design file"),
+             (str(tmp_path / "nowhere.toml"), "file not found"),
+             (str(bad), "not valid TOML")]
+    for text, words in cases:
+        b.bench_file.value = text
+        b.bench_load.click()
+        explorer.path_box.value = text
+        explorer.load_button.click()
+        for shown in (html.unescape(b.bench_file_error.value),
+                      html.unescape(explorer.path_error.value)):
+            assert words in shown and f"<code>{text}" in shown, shown
+            assert ".toml" in shown or words != cases[0][1]
+    explorer.path_box.value = str(DEMO)
+    explorer.load_button.click()
+
+
 def test_find_file_from_a_subfolder(monkeypatch):
     monkeypatch.chdir(WORKBOOKS)
     assert find_file("workbooks/designs/demo-board.toml").resolve() == DEMO.resolve()

@@ -646,6 +646,7 @@ PART_NOT_FOR_OPEN_DRAIN_BUS = "the part cannot sit on an open-drain bus here"
 NO_PLACED_PART = "no placed part with this reference"
 FILE_NAME_NEEDED = "a file name is needed"
 DESIGN_PATH_NEEDED = "a design file path is needed"
+DESIGN_PATH_IS_FOLDER = "this is a folder, not a design file"
 SAVE_WOULD_OVERWRITE = "{file} exists; Save does not overwrite a file"
 SAVE_OVERWRITE_HINT = ("tick 'overwrite {name}' and press Save again to replace it, or "
                        "choose another name")

@@ -35,6 +35,7 @@ from pinlib.present.widgets.common import (
     _values,
     block_layout,
     button_layout,
+    design_path,
     field_layout,
     find_file,
     heading,
@@ -577,13 +578,8 @@ class BusBuilder(_Panel):
         self.bench_line.value = value
 
     def _bench_load_clicked(self) -> None:
-        path = self.bench_file.value.strip()
         try:
-            if not path or Path(path).is_dir():
-                raise InputError(M.DESIGN_PATH_NEEDED, field="design",
-                                 value=path or None,
-                                 expected="a design file path such as "
-                                          "designs/gpio-reset-board.toml")
+            path = design_path(self.bench_file.value, "designs/gpio-reset-board.toml")
             self.load_bench_design(path)
         except PinlibError as err:
             # where, as the command names it (the file and line, the field)

@@ -498,6 +498,21 @@ def find_file(path: str | os.PathLike) -> Path:
                      hint="looked in the working folder and each folder above it")
 
 
+def design_path(text: str, example: str) -> str:
+    """The path typed into a Design box, for Load; an InputError naming it when it is
+    empty or a folder ("designs": a .toml file is expected).  Every panel shows a
+    refused Load with :func:`~pinlib.present.widgets.markup.error_html`, which names the
+    file (and its line) as the command does."""
+    path = text.strip()
+    if not path:
+        raise InputError(M.DESIGN_PATH_NEEDED, field="Design",
+                         expected=f"a design file path such as {example}")
+    if Path(path).is_dir():
+        raise InputError(M.DESIGN_PATH_IS_FOLDER, file=path,
+                         expected=f"a design file (.toml), such as {example}")
+    return path
+
+
 class StaticView:
     """Charts and tables as plain HTML (inline SVG, no script), for exported pages.
 
