@@ -60,6 +60,8 @@ LOCK_IS_A_LINK = "its lock file {lock} is a symbolic link, which pinlib does not
 CANNOT_WRITE_IN_FOLDER = "cannot write in this folder: {reason}"
 FOLDER_NOT_WRITABLE = "the folder {folder} is not writable by this user ({user})"
 FOLDER_READ_ONLY_FS = "the folder {folder} is on a read-only file system"
+FOLDER_MISSING = "the folder {folder} does not exist"
+FOLDER_MISSING_HINT = "create it first, or name a folder that exists"
 LOCK_NOT_WRITABLE = "its lock file {lock} is not writable by this user ({user})"
 # the hint of FOLDER_NOT_WRITABLE
 WRITABLE_FOLDER_HINT = ("pinlib writes its lock file and the new file in that folder: use "
