@@ -238,6 +238,14 @@ def test_quantities_are_read_with_their_units(library):
     assert b.error is None and b.held_html.value == ""
 
 
+def test_a_trace_width_is_given_a_width_as_its_example(library):
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    _type(b.fields["width"], "abc")  # invented test input: no number
+    # common practice, no source: a trace is some tenths of a mm wide, not "14 cm"
+    shown = html.unescape(b.fields["width"].error_html.value)
+    assert "e.g. '0.2 mm'" in shown and "14 cm" not in shown
+
+
 def test_an_empty_plain_number_is_not_asked_for_a_unit(library):
     """εr is a plain number: an empty box asks for the number in its range, not for a
     unit it has none of; an empty quantity still asks for its unit."""
