@@ -368,8 +368,21 @@ def test_protocol_change_says_what_the_mode_became(library):
     b.set(protocol="smbus")
     assert b.mode.value != "fast"
     assert "fast" in b.mode_note.value and b.mode.value in b.mode_note.value
-    b.set(protocol="i2c")  # the SMBus mode is no I2C mode either: said again
-    assert b.mode_note.value != ""
+    b.set(protocol="i2c")  # back on I2C: the I2C mode last chosen, and said
+    assert b.mode.value == "fast" and "last chosen for I2C" in b.mode_note.value
+
+
+def test_back_on_i2c_the_last_i2c_mode_is_kept(library):
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.set(mode="fast-plus")
+    b.set(protocol="smbus")
+    b.set(mode="400k")
+    b.set(protocol="i2c")
+    assert b.mode.value == "fast-plus" and "fast-plus" in b.mode_note.value
+    b.set(protocol="smbus")  # and back on SMBus, its own last mode
+    assert b.mode.value == "400k"
+    b.set(mode="1m")  # a choice of the user's: the note goes
+    assert b.mode_note.value == ""
 
 
 def test_a_note_on_what_a_change_did_goes_when_the_user_chooses_again(library):
@@ -378,11 +391,11 @@ def test_a_note_on_what_a_change_did_goes_when_the_user_chooses_again(library):
     b = BusBuilder(library, peripherals=["eeprom-i2c"])
     b.set(protocol="smbus")
     b.set(protocol="i2c")
-    assert "now" in b.mode_note.value
+    assert "last chosen" in b.mode_note.value
     b.set(mode="fast-plus")
     assert b.mode_note.value == ""
     b.set(protocol="smbus")  # said again on the next change of the options
-    assert "fast-plus" in b.mode_note.value
+    assert "last chosen" in b.mode_note.value
     # the driver's output pin on workbench 02 alike
     le = LineExplorer(library, length=0.28)
     le.driver_part.value = "nor-flash-spi"  # its one output pin is cipo

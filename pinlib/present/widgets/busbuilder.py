@@ -28,6 +28,7 @@ from pinlib.present.widgets.common import (
     QuantityField,
     Slider,
     StaticView,
+    _clear_on_next_choice,
     _closest_option,
     _e24_options,
     _num,
@@ -202,6 +203,7 @@ class BusBuilder(_Panel):
             1 if protocol == "i2c" else 0], description="Mode", style=style(),
             layout=field_layout())
         self.mode_note = note_widget()
+        self._modes_chosen: dict[str, str] = {}  # the mode last chosen, by protocol
         self.supply = q(QuantityField("supply", "Supply", "V", supply, lo=0.8, hi=5.5,
                                       placeholder="3.3 V"),
                         lambda _f: self._filters_changed())
@@ -389,9 +391,25 @@ class BusBuilder(_Panel):
         self.pick_fit.value = notice(e(why)) if why else ""
 
     def _protocol_changed(self, change=None) -> None:
+        """Another protocol: its modes.  Back on a protocol chosen before, the mode is the
+        one last chosen there (fast-plus, not standard, after a look at SMBus), and the
+        note under Mode says so; on another, :func:`set_options` says what it became."""
+        old = change["old"] if change else None
+        if old in MODES and self.mode.value in MODES[old]:
+            self._modes_chosen[old] = self.mode.value
+        modes = list(MODES[self.protocol.value])
+        back = self._modes_chosen.get(self.protocol.value)
         with self._hold():
-            set_options(self.mode, list(MODES[self.protocol.value]), self.mode.value,
-                        what="Mode", said=self.mode_note)
+            if back in modes and back != self.mode.value:
+                self.mode.options = modes
+                self.mode.value = back
+                self.mode_note.value = notice(
+                    f"Mode <b>{e(back)}</b>: the one last chosen for "
+                    f"{e(self.protocol.value.upper())}.")
+                _clear_on_next_choice(self.mode, self.mode_note)
+            else:
+                set_options(self.mode, modes, self.mode.value, what="Mode",
+                            said=self.mode_note)
         self._changed()
 
     def _set_mode(self, value) -> None:
