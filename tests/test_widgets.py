@@ -701,7 +701,7 @@ def test_line_receivers_and_pins(library):
     le.remove_receiver(ref)
     # no receiver left: the line still evaluates, the waveform chart says why it is empty
     assert le.error is None and le.waves.svg is None
-    assert "no receiving input" in le.waves.message
+    assert "the line has no receiver" in le.waves.message
     le.set(driver_pin="copi")
     assert le.design.buses[0].devices[0].pin == "copi"
 
@@ -1551,3 +1551,16 @@ def test_bus_builder_supply_filter_takes_the_rail_over_its_tolerance(library):
     # part's limits, where the check passes at a margin of 0
     b.set(supply_tolerance=0.05)
     assert "(does not fit)" not in dict((v, k) for k, v in b.controller.options)["fpga-io-3v3"]
+
+
+def test_line_without_a_receiver_says_there_is_nothing_to_check(library):
+    le = LineExplorer(library, driver=("mcu-3v3", "sclk"),
+                      receivers=[("display-controller-spi", "sclk")], length=0.28)
+    for ref, _, _ in le.receivers:
+        le.remove_receiver(ref)
+    assert "nothing to check: the line has no receiver" in le.status_html.value
+    assert "PASS" not in le.status_html.value.upper().replace("PASSES", "")
+    assert le.edges.svg is None and le.waves.svg is None
+    assert "no receiver" in le.edges.widget.value
+    le.add_receiver("display-controller-spi", "sclk")
+    assert "nothing to check" not in le.status_html.value and le.edges.svg
