@@ -1564,3 +1564,18 @@ def test_line_without_a_receiver_says_there_is_nothing_to_check(library):
     assert "no receiver" in le.edges.widget.value
     le.add_receiver("display-controller-spi", "sclk")
     assert "nothing to check" not in le.status_html.value and le.edges.svg
+
+
+def test_line_supply_follows_a_driver_that_does_not_take_it(library):
+    le = LineExplorer(library, length=0.05)
+    assert le.supply.value == pytest.approx(3.3)
+    le.set(driver_part="mcu-5v")
+    typ = library.get("mcu-5v").supply.typ.value  # the part file's typical supply
+    assert le.supply.value == pytest.approx(typ) and "typical supply" in le.supply_note.value
+    # the driver (U1) within its range; a 3.3 V receiver may not be, and says so
+    assert all(c.status == "pass" for _, _, c in le.result.buses[0].all_checks()
+               if c.id == "supply-range" and c.subject == "U1")
+    le.supply.text.value = "4.5 V"  # invented test input: the user's own choice
+    assert le.supply_note.value == ""
+    le.set(driver_part="mcu-3v3")  # 4.5 V is outside a 3.3 V part's range too
+    assert le.supply.value == pytest.approx(library.get("mcu-3v3").supply.typ.value)

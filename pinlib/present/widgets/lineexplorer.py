@@ -11,6 +11,7 @@ import tomlkit
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
+from pinlib.core.quantity import format_si
 from pinlib.engines.dispatch import check_design
 from pinlib.library import load_library
 from pinlib.library.loader import Library
@@ -145,6 +146,9 @@ class LineExplorer(_Panel):
         self.placed_note = note_widget()  # receivers placed for another pin function
         self.supply = self._quantity(QuantityField("supply", "Supply", "V", supply, lo=0.8,
                                                    hi=5.5, placeholder="3.3 V"))
+        self.supply_note = note_widget()  # the supply following the driver's
+        self.supply.on_change = lambda _f: (setattr(self.supply_note, "value", ""),
+                                            self._changed())
         self.trace = _Trace(self, length=length, max_length=2.0, min_length=0.005)
         self.series_mode = W.ToggleButtons(options=["auto", "none", "fixed"], value="auto",
                                            description="Series R",
@@ -208,7 +212,34 @@ class LineExplorer(_Panel):
         with self._hold():
             set_options(self.driver_pin, pins, self.driver_pin.value, what="Output pin",
                         said=self.pin_note)
+            if change is not None:
+                self._follow_supply(part)
         self._pin_changed()
+
+    def _follow_supply(self, part) -> None:
+        """Another driver: a supply outside its range becomes its typical supply (a 5 V
+        part at 3.3 V failed on its supply with nothing said), and the note under Supply
+        says so; without a typical supply the note points at Supply."""
+        sup = None if part is None else part.supply_for(None)
+        self.supply_note.value = ""
+        if sup is None or self.supply.value is None:
+            return
+        lo, hi = sup.min.value, sup.max.value
+        now = self.supply.value
+        if lo <= now <= hi:
+            return
+        name = e(self.driver_part.value)
+        span = f"{format_si(lo, 'V')} to {format_si(hi, 'V')}"
+        typ = None if sup.typ is None else sup.typ.value
+        if typ is not None and self.supply._in_range(typ):
+            self.supply.set_value(typ)
+            self.supply_note.value = notice(
+                f"Supply set to <b>{e(format_si(typ, 'V'))}</b>, the typical supply of "
+                f"{name} ({span}); it was {e(format_si(now, 'V'))}.")
+        else:
+            self.supply_note.value = notice(
+                f"Supply {e(format_si(now, 'V'))} is outside {name}'s range ({span}): "
+                "change <b>Supply</b>.")
 
     def _pin_changed(self, change=None) -> None:
         part = self.library.parts.get(self.driver_part.value)
@@ -413,7 +444,7 @@ class LineExplorer(_Panel):
     def _layout(self) -> W.Widget:
         controls = [
             self.driver_part, choice_line(self.driver_part), self.driver_pin, self.pin_note,
-            self.supply.box,
+            self.supply.box, self.supply_note,
             heading("Receivers"), self.any_function,
             with_button_below(self.pick, self.add_button),
             choice_line(self.pick), self.pick_note,
