@@ -1434,7 +1434,8 @@ def test_crosstalk_explorer_names_the_designs_aggressor_and_its_sliders_units():
     with pytest.raises(InputError) as info:
         x.set(spacing=30e-6)
     text = info.value.message
-    assert "30 µm" in text and "50 µm" in text and "2 mm" in text
+    # the slider's ends are the search's: 0.1 h to 10 h of the demo's 0.18 mm height
+    assert "30 µm" in text and "18 µm" in text and "1.8 mm" in text
     assert "Ω" not in text and "E24" not in text
 
 

@@ -145,6 +145,20 @@ def test_a_slider_label_follows_its_value(panels):
     xt.set(spacing=xt.coupling.spacing)
 
 
+def test_crosstalk_sliders_reach_as_far_as_the_search(panels):
+    """The chart and the figures search the spacing from 0.1 h and the length up to 1 m:
+    the sliders reach the same ends (they stopped at 50 µm and 500 mm)."""
+    from pinlib.engines.coupling import LENGTH_SEARCH_MAX
+
+    xt = panels["CrosstalkExplorer"]
+    lo, hi = xt.result.workings.spacing_range
+    spacings = [v for _, v in xt.spacing.options]
+    assert min(spacings) == pytest.approx(lo) and max(spacings) == pytest.approx(hi)
+    assert xt.figures["spacing_searched_from"].value == pytest.approx(min(spacings))
+    lengths = [v for _, v in xt.length.options]
+    assert max(lengths) == LENGTH_SEARCH_MAX == xt.figures["length_searched_to"].value
+
+
 def test_hiding_the_unused_trace_fields_hides_nothing_else(library):
     b = BusBuilder(library, peripherals=["eeprom-i2c"])
     b.set(geometry="per-length")

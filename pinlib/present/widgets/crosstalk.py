@@ -9,7 +9,7 @@ import ipywidgets as W
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.quantity import format_si
-from pinlib.engines.coupling import evaluate_coupling
+from pinlib.engines.coupling import LENGTH_SEARCH_MAX, evaluate_coupling
 from pinlib.engines.dispatch import evaluate_bus
 from pinlib.model.design import Aggressor, load_design
 from pinlib.present import charts, plotdata
@@ -39,7 +39,8 @@ __all__ = ["CrosstalkExplorer"]
 #: The slider positions (common practice, no source: a board's usual gaps, runs, edges).
 SPACINGS = (0.05e-3, 0.075e-3, 0.1e-3, 0.15e-3, 0.2e-3, 0.25e-3, 0.3e-3, 0.4e-3, 0.5e-3,
             0.75e-3, 1e-3, 1.5e-3, 2e-3)
-LENGTHS = (0.01, 0.02, 0.03, 0.04, 0.06, 0.08, 0.1, 0.15, 0.2, 0.3, 0.5)
+LENGTHS = (0.01, 0.02, 0.03, 0.04, 0.06, 0.08, 0.1, 0.15, 0.2, 0.3, 0.5, 0.75,
+           LENGTH_SEARCH_MAX)
 EDGES = (0.2e-9, 0.3e-9, 0.5e-9, 0.75e-9, 1e-9, 1.5e-9, 2e-9, 3e-9, 5e-9, 10e-9)
 
 
@@ -47,9 +48,16 @@ EDGES = (0.2e-9, 0.3e-9, 0.5e-9, 0.75e-9, 1e-9, 1.5e-9, 2e-9, 3e-9, 5e-9, 10e-9)
 _UNITS = {"spacing": "m", "length": "m", "edge_time": "s"}
 
 
-def _options(values, unit: str, own: float) -> list[tuple[str, float]]:
-    """Slider options: the usual values and the design's own."""
-    got = sorted(set(values) | {float(own)})
+def _options(values, unit: str, own: float, within: tuple[float, float] | None = None
+             ) -> list[tuple[str, float]]:
+    """Slider options: the usual values and the design's own; with ``within``, the usual
+    values inside it and its two ends (the range the engine searches and the chart
+    draws), so the slider reaches as far as the chart, and no further."""
+    got = set(values)
+    if within is not None:
+        lo, hi = (float(x) for x in within)
+        got = {v for v in got if lo <= v <= hi} | {lo, hi}
+    got = sorted(got | {float(own)})
     return [(format_si(v, unit), v) for v in got]
 
 
@@ -113,7 +121,10 @@ class CrosstalkExplorer(_Panel):
         self.sweep = self.waves = None
         c = self.coupling
         self.sliders: dict[str, Slider] = {}  # by label
-        self.spacing = self._slider("Spacing", _options(SPACINGS, "m", c.spacing), c.spacing)
+        # the spacing from where the search starts to where it ends (the chart's axis)
+        searched = first.workings.spacing_range
+        self.spacing = self._slider("Spacing", _options(SPACINGS, "m", c.spacing, searched),
+                                    c.spacing)
         self.length = self._slider("Parallel length", _options(LENGTHS, "m", c.length),
                                    c.length)
         edge = self.aggressor.edge_time
