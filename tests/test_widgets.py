@@ -1580,3 +1580,14 @@ def test_line_supply_follows_a_driver_that_does_not_take_it(library):
     assert le.supply_note.value == ""
     le.set(driver_part="mcu-3v3")  # 4.5 V is outside a 3.3 V part's range too
     assert le.supply.value == pytest.approx(library.get("mcu-3v3").supply.typ.value)
+
+
+def test_swap_change_list_names_a_coupling_as_the_reports_do():
+    # invented test input: a 1.8 V controller moves the crosstalk figures of the demo's
+    # coupling; its row says "beside", not the id's arrow
+    x = SwapExplorer(DEMO)
+    assert x.apply_swap("U1", "mcu-1v8") == []
+    assert any("<-" in c.path for c in x.changes.figure_changes)
+    cells = re.findall(r"<td[^>]*>([^<]*)</td>", x.changes_html.value)
+    assert "sensors.scl beside display.sclk" in cells
+    assert not any("&lt;-" in c or "<-" in c for c in cells)

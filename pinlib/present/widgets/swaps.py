@@ -350,12 +350,14 @@ class SwapExplorer(_Panel):
         return sorted(ids, key=lambda b: (b not in changed, ids.index(b)))
 
     def _place(self, path: str) -> str:
-        """Where in its group a change lies: the segment or line of a bus, a coupling's
-        id, "bus" for the bus itself."""
+        """Where in its group a change lies: the segment or line of a bus, a coupling as
+        the reports name it ("sensors.scl beside display.sclk", not its id
+        ``sensors.scl<-display.sclk``), "bus" for the bus itself."""
         head, _, rest = path.partition("/")
         if any(b.id == head for b in self.design.buses):
             return rest or "bus"
-        return path
+        victim, arrow, aggressor = path.partition("<-")
+        return f"{victim} beside {aggressor}" if arrow else path
 
     def _changes_html(self) -> str:
         cl = self.changes
