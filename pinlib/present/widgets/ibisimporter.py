@@ -50,6 +50,8 @@ from pinlib.present.widgets.markup import (
 #: The choice of a pin that is not imported.
 SKIP = "(not imported)"
 _WIDTH = "400px"
+#: The IBIS file's row (the field and its button): room for a path of some 80 characters.
+_FILE_ROW = "860px"
 
 #: The panel's label of each field the import names as the command's option (or as the
 #: part file's key): a message here names what the user sees.
@@ -111,7 +113,10 @@ class IbisImporter(_Panel):
         self.warnings: list[str] = []
         self.written: Path | None = None
         self._read_line = ""  # what the last read said
-        self.file = W.Text(placeholder="path/to/part.ibs", description="IBIS file", **_s())
+        # a path is longer than an id: the field takes the width beside its button
+        self.file = W.Text(placeholder="path/to/part.ibs", description="IBIS file",
+                           style=style(), layout=W.Layout(width="auto", flex="1 1 auto",
+                                                          min_width=_WIDTH, max_width="100%"))
         self.read_button = W.Button(description="Read the file", layout=button_layout("160px"))
         self.component = W.Dropdown(options=[], description="Component", **_s())
         self.new_id = W.Text(placeholder="io-buffer-acme", description="Part id", **_s())
@@ -128,7 +133,9 @@ class IbisImporter(_Panel):
         self.preview_button.on_click(lambda _b: self.preview())
         self.write_button.on_click(lambda _b: self.write())
         self.component.observe(lambda _c: self._component_chosen(), names="value")
-        form = W.VBox([W.HBox([self.file, self.read_button]), self.component,
+        form = W.VBox([W.HBox([self.file, self.read_button],
+                              layout=W.Layout(width="100%", max_width=_FILE_ROW,
+                                              align_items="center")), self.component,
                        W.HTML(block("The function of each pin (guessed from its signal "
                                     "name; pins left out are not imported):")),
                        self.pin_box, self.new_id, self.category, self.i_ol,
@@ -295,6 +302,24 @@ def _rows(prefix: str, table: dict):
             yield path, str(value), "", "", ""
 
 
+#: A quantity as the part file writes it: a number with a decimal point, then its unit.
+_QUANTITY = re.compile(r"([+-]?\d+\.\d+) ?([A-Za-zµΩ%]{1,4})")
+
+
+def _cell(style: str, text, *, number: bool) -> str:
+    """A cell of the values table: a quantity with three significant digits, as every
+    table of pinlib shows figures ("1.27 ns"; the file keeps six, "1.27329 ns", shown as
+    the cell's tooltip)."""
+    text = str(text)
+    m = _QUANTITY.fullmatch(text.strip()) if number and len(text) < 40 else None
+    if m is None:
+        return f'<td style="{style}">{e(text)}</td>'
+    shown = f"{float(m.group(1)):.3g} {m.group(2)}"
+    if shown == text.strip() or "e" in shown.split()[0]:
+        return f'<td style="{style}">{e(text)}</td>'
+    return f'<td style="{style}" title="{e(text)}, as written in the file">{e(shown)}</td>'
+
+
 def values_table(text: str) -> str:
     """An HTML table of the values of a part file's text, each with its provenance."""
     data = tomllib.loads(text)
@@ -302,8 +327,9 @@ def values_table(text: str) -> str:
     # the value and typ columns as the figures tables' (a quantity never wraps)
     styles = (CELL, NUM, NUM, CELL, CELL)
     rows = "".join(
-        "<tr>" + "".join(f'<td style="{st}">{e(c)}</td>'
-                         for st, c in zip(styles, row, strict=True)) + "</tr>"
+        "<tr>" + "".join(_cell(st, c, number=i in (1, 2))
+                         for i, (st, c) in enumerate(zip(styles, row, strict=True)))
+        + "</tr>"
         for row in _rows("", body))
     head = "".join(f'<th style="{HEAD}">{h}</th>'
                    for h in ("field", "value", "typ", "basis", "source"))
