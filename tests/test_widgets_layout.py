@@ -159,6 +159,19 @@ def test_crosstalk_sliders_reach_as_far_as_the_search(panels):
     assert max(lengths) == LENGTH_SEARCH_MAX == xt.figures["length_searched_to"].value
 
 
+@pytest.mark.parametrize("name", ["BusBuilder", "LineExplorer"])
+def test_part_lists_start_where_the_other_fields_do(panels, name):
+    """The Peripheral and Receiver dropdowns and the lists of placed parts had a narrower
+    description (84 px): they started 46 px left of every other field."""
+    from pinlib.present.widgets.common import LABEL_WIDTH
+
+    panel = panels[name]
+    widths = {w.description: w.style.description_width for w in _tree(panel.widget)
+              if isinstance(w, (W.Dropdown, W.Select, W.Text)) and w.description}
+    assert widths["Supply"] == f"{LABEL_WIDTH}px"
+    assert {d: v for d, v in widths.items() if v != f"{LABEL_WIDTH}px"} == {}
+
+
 def test_hiding_the_unused_trace_fields_hides_nothing_else(library):
     b = BusBuilder(library, peripherals=["eeprom-i2c"])
     b.set(geometry="per-length")

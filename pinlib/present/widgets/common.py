@@ -56,7 +56,7 @@ _ids = itertools.count(1)
 #: Width of a control's description. [px]
 LABEL_WIDTH = 130
 #: Width of the control column. [px]
-COLUMN_WIDTH = 360
+COLUMN_WIDTH = 380
 
 
 # =========================================================================== layouts
