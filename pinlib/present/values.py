@@ -6,7 +6,7 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 
-from pinlib.core.labels import figure_label, shown_figures
+from pinlib.core.labels import figure_label, plural_s, shown_figures
 from pinlib.core.quantity import format_value
 from pinlib.model.result import BusResult, Check, DesignResult, Figure, figure_text
 
@@ -67,7 +67,7 @@ def _text(name: str, f: Figure) -> str:
 
 def _modes(modes) -> str:
     modes = sorted(int(m) for m in modes)
-    return f"mode{'s' if len(modes) != 1 else ''} {', '.join(map(str, modes))}"
+    return f"mode{plural_s(len(modes))} {', '.join(map(str, modes))}"
 
 
 #: A yes/no check whose details say what was held against what: its value and limit
