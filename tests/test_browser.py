@@ -149,7 +149,9 @@ SPECS = [
          change=("tab", "Record a value"),
          before_bad=(("Field", "sda.c_in"),),
          bad=(("Value", "15", None),),
-         bad_tab="Record a value"),
+         bad_tab="Record a value",
+         # a path as a vendor's model sits in a project folder
+         long_text=(("IBIS file", "vendor-models/acme/io-buffers/acme-io33-rev-b.ibs"),)),
     Spec("05-rerun-after-substitution.ipynb",
          required=("Design", "Load", "Device", "Put there", "Apply", "Reset"),
          change=("Device", "U7"),

@@ -84,3 +84,56 @@ def test_write_shows_what_the_part_lacks_to_stand_on_a_bus(tmp_path, ibs):
     assert panel.write() == tmp_path / "team" / "demo-sda.toml"
     shown = panel.message.value
     assert "created" in shown and "warning:" in shown and "i2c-scl" in shown
+
+
+def test_a_read_after_a_refused_one_chooses_the_component_and_clears_the_message(tmp_path,
+                                                                                  ibs):
+    panel = IbisImporter(tmp_path / "team")
+    panel.set(file=str(tmp_path / "nope.ibs"))
+    assert "file not found" in panel.message.value
+    panel.set(file=str(ibs))
+    # invented test input: the model's only component
+    assert panel.component.value == "DEMO-IO" and set(panel.pins) == {"SDA", "SCL"}
+    assert "file not found" not in panel.message.value and "read" in panel.message.value
+    assert panel.preview() is not None and "no such component" not in panel.message.value
+
+
+def test_messages_name_the_panels_fields_not_the_commands_options(tmp_path, ibs):
+    team = tmp_path / "team"
+    panel = IbisImporter(team).set(file=str(ibs), component="DEMO-IO", id="demo-x",
+                                   category="memory")
+    assert panel.write() == team / "demo-x.toml"
+    assert panel.write() is None
+    shown = panel.message.value
+    assert "a part with this id exists" in shown and "choose another Part id" in shown
+    assert "--" not in shown and "field <code>Part id</code>" in shown
+    panel.component.options = ["DEMO-IO", "NOT-THERE"]  # invented: a stale choice
+    panel.component.value = "NOT-THERE"
+    assert panel.preview() is None
+    assert "field <code>Component</code>" in panel.message.value
+    assert "--" not in panel.message.value
+    panel.component.value = "DEMO-IO"  # a new choice: the old refusal goes
+    assert "no such component" not in panel.message.value
+
+
+def test_the_preview_shows_three_significant_digits(tmp_path, ibs):
+    import re
+
+    panel = IbisImporter(tmp_path / "team").set(file=str(ibs), component="DEMO-IO",
+                                                pins={"SDA": "spi-sclk", "SCL": None})
+    text = panel.preview()
+    # the file keeps six digits ("1.27329 ns"); the table shows three, the file's as tooltip
+    assert re.search(r"\d\.\d{4,} ns", text)
+    cells = re.findall(r"<td[^>]*>([^<]*)</td>", panel.preview_html.value)
+    numbers = [m.group(1) for c in cells if (m := re.fullmatch(r"[+-]?([\d.]+) ?\w+", c))]
+    assert numbers and all(len(n.replace(".", "").lstrip("0")) <= 3 for n in numbers), numbers
+    assert "as written in the file" in panel.preview_html.value
+
+
+def test_the_ibis_file_field_takes_the_width_beside_its_button(tmp_path):
+    panel = IbisImporter(tmp_path / "team")
+    # common practice, no source: a path wants more room than a part id's 400 px field
+    assert panel.file.layout.flex == "1 1 auto" and panel.file.layout.width == "auto"
+    row = next(w for w in panel.widget.children[1].children if panel.file in
+               getattr(w, "children", ()))
+    assert int(row.layout.max_width.rstrip("px")) > 400 + 160

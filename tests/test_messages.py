@@ -221,10 +221,19 @@ def _(env):
     return err.message  # the hint of a NOT_TOML problem
 
 
-@case("CANNOT_LOCK", M.CANNOT_LOCK.format(reason=os.strerror(errno.ENOENT)))
+@case("CANNOT_LOCK", M.CANNOT_LOCK.format(reason=os.strerror(errno.ENOSPC)))
 def _(env):
+    real_open = os.open
+
+    def full(path, *args, **kw):  # a full disk refuses the lock file
+        if str(path).endswith(".lock"):
+            raise OSError(errno.ENOSPC, os.strerror(errno.ENOSPC), str(path))
+        return real_open(path, *args, **kw)
+
+    env.monkeypatch.setattr(os, "open", full)
+
     def lock(e):
-        with file_lock(e.tmp / "missing-folder" / "x.toml"):
+        with file_lock(e.tmp / "x.toml"):
             pass
     return _fails(lock, env)
 
@@ -242,9 +251,27 @@ def _(env):
     return got
 
 
-@case("CANNOT_WRITE_IN_FOLDER", M.CANNOT_WRITE_IN_FOLDER.format(reason=os.strerror(errno.ENOENT)))
+@case("CANNOT_WRITE_IN_FOLDER", M.CANNOT_WRITE_IN_FOLDER.format(reason=os.strerror(errno.ENOSPC)))
 def _(env):
-    return _fails(lambda e: atomic_write(e.tmp / "missing-folder" / "x.toml", "x = 1\n"), env)
+    import tempfile
+
+    def full(*args, **kw):  # a full disk refuses the temporary file
+        raise OSError(errno.ENOSPC, os.strerror(errno.ENOSPC))
+
+    env.monkeypatch.setattr(tempfile, "mkstemp", full)
+    return _fails(lambda e: atomic_write(e.tmp / "x.toml", "x = 1\n"), env)
+
+
+@case("FOLDER_MISSING", M.FOLDER_MISSING.format(folder="TMP/missing-folder"))
+def _(env):
+    err = _fails(lambda e: atomic_write(e.tmp / "missing-folder" / "x.toml", "x = 1\n"), env)
+    return err.message.replace(str(env.tmp), "TMP")
+
+
+@case("FOLDER_MISSING_HINT")
+def _(env):
+    err = _fails(lambda e: atomic_write(e.tmp / "missing-folder" / "x.toml", "x = 1\n"), env)
+    return err.hint
 
 
 def _denied(env, errno_code, lock_there=False):
@@ -3734,6 +3761,15 @@ def _(env):
                                 / "demo-board.toml")
     x.path_box.value = ""
     x._load_clicked()  # the Load button: the refusal is shown beside the box
+    return x.path_error.value
+
+
+@case("DESIGN_PATH_IS_FOLDER")
+def _(env):
+    x = _widgets().SwapExplorer(Path(__file__).resolve().parents[1] / "workbooks" / "designs"
+                                / "demo-board.toml")
+    x.path_box.value = str(env.tmp)  # a folder where a design file belongs
+    x._load_clicked()
     return x.path_error.value
 
 

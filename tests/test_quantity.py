@@ -567,6 +567,16 @@ def test_a_bare_number_is_given_one_example_its_own():
     assert "e.g. '14 cm'" in str(info.value)
 
 
+@pytest.mark.parametrize(("field", "example"), [
+    ("width", "0.2 mm"), ("board.geometry.outer.width", "0.2 mm"), ("thickness", "35 µm"),
+    ("spacing", "0.2 mm"), ("length", "14 cm")])
+def test_a_length_is_given_an_example_of_its_kind(field, example):
+    # common practice, no source: a trace is some tenths of a mm wide, copper 35 µm thick
+    with pytest.raises(UnitError) as info:
+        parse("abc", "m", field=field)
+    assert f"e.g. '{example}'" in str(info.value)
+
+
 def test_an_unknown_unit_is_echoed_as_written():
     # "5 pF pF" said "unknown unit 'pFpF'": the spaces the reader drops to match a unit
     # ("k Ω") are kept where it echoes one it does not know

@@ -440,3 +440,18 @@ def test_a_long_path_in_the_detail_and_the_swap_heading_is_never_cut_inside_a_na
         for name in (*tmp_path.parts[1:], "a-rather-long-folder-name-for-boards",
                      "and-another-level-of-folders", "gpio-reset-board.toml"):
             assert any(name in ln for ln in lines), (argv[0], name)
+
+
+def test_a_yes_no_check_shows_what_it_compared_in_every_table():
+    """The spi-mode check's value and limit cells: the bus's mode against the part's
+    modes, the same in the text, the report and the widgets (one function makes them)."""
+    from pinlib.model.result import check_true
+    from pinlib.present.review.text import _check_cells
+    from pinlib.present.values import check_cells
+
+    # invented test input: mode 1 on a part stating modes 0 and 3
+    c = check_true("spi-mode", False, "invented", "SPI mode 1 is not one of U7's modes",
+                   subject="U7", details={"mode": 1, "modes": [3, 0]})
+    assert check_cells(c) == ("mode 1", "modes 0, 3") == _check_cells(c)
+    plain = check_true("pullup-present", True, "invented", "a pull-up is placed")
+    assert check_cells(plain) == ("", "") and _check_cells(plain) == ("yes", "")

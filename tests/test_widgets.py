@@ -563,8 +563,9 @@ def test_save_into_a_missing_folder_names_the_file(library, tmp_path):
     target = tmp_path / "nowhere" / "board.toml"
     b.save_path.value = str(target)
     b.save_button.click()
-    assert "cannot write in this folder" in b.save_error.value
-    assert str(target) in b.save_error.value
+    # the folder named, not "cannot write in this folder: No such file or directory"
+    assert f"the folder {target.parent} does not exist" in b.save_error.value
+    assert str(target) in b.save_error.value and not target.parent.exists()
 
 
 def test_bench_reading_says_when_it_is_not_that_of_the_field(library):
@@ -668,16 +669,16 @@ def test_line_series_slider_never_shows_a_resistor_not_in_use(line):
     # slider kept reading "27 Ω" beside waveforms labelled "no series R"
     line.set(series="auto", length=0.28)
     assert line.figures["series_resistor"].value > 0
-    assert line.series.readout and line.series.description == "Rs (E24)"
+    assert line.series_slider.shown and line.series.description == "Rs (E24)"
     assert line.series.value == line.figures["series_resistor"].value
     line.set(length=0.03)
     assert line.figures["series_resistor"].value == 0.0
-    assert not line.series.readout and line.series.description == "Rs: none"
+    assert not line.series_slider.shown and line.series.description == "Rs: none"
     assert set(line.wave_data.traces) == {"rise, no series R", "fall, no series R"}
     line.set(series="none")
-    assert not line.series.readout
+    assert not line.series_slider.shown
     line.set(series=33.0)
-    assert line.series.readout and line.series.description == "Rs (E24)"
+    assert line.series_slider.shown and line.series.description == "Rs (E24)"
     line.set(series="auto", length=0.28)
 
 
@@ -700,7 +701,7 @@ def test_line_receivers_and_pins(library):
     le.remove_receiver(ref)
     # no receiver left: the line still evaluates, the waveform chart says why it is empty
     assert le.error is None and le.waves.svg is None
-    assert "no receiving input" in le.waves.message
+    assert "the line has no receiver" in le.waves.message
     le.set(driver_pin="copi")
     assert le.design.buses[0].devices[0].pin == "copi"
 
@@ -794,8 +795,12 @@ def test_spi_budget_shows_a_mode_the_display_does_not_take(budget):
     assert mode["U12"].status == "fail" and mode["U1"].status == "pass"
     assert "SPI mode 1 is not one of U12" in budget.checks_html.value
     assert "FAIL" in budget.status_html.value.upper()
+    # the row shows the mode against the part's modes, and a note under the mode says it
+    assert ">mode 1<" in budget.checks_html.value and ">modes 0, 3<" in budget.checks_html.value
+    assert "SPI mode 1 is not one of U12" in budget.mode_note.value
     budget.set(clock=10e6, spi_mode=3)
     assert all(c.status == "pass" for c in budget.bus_result.checks if c.id == "spi-mode")
+    assert budget.mode_note.value == ""
 
 
 def test_spi_budget_refuses_a_design_without_that_bus():
@@ -1097,6 +1102,28 @@ def test_swap_load_refuses_an_empty_path_and_says_when_results_are_old(explorer,
     explorer.path_box.value = str(DEMO)
     explorer.load_button.click()
     assert explorer.path_error.value == "" and explorer.held_html.value == ""
+
+
+def test_load_messages_name_the_file_alike_on_01_and_05(library, explorer, tmp_path):
+    """A folder is said to be one (a .toml file expected); a missing or bad file is named,
+    on the bus builder's bench panel as on the swap panel."""
+    bad = tmp_path / "bad.toml"
+    bad.write_text("this is not TOML\n", encoding="utf-8")  # invented test input
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    cases = [(str(tmp_path), "this is a folder, not a design file"),
+             (str(tmp_path / "nowhere.toml"), "file not found"),
+             (str(bad), "not valid TOML")]
+    for text, words in cases:
+        b.bench_file.value = text
+        b.bench_load.click()
+        explorer.path_box.value = text
+        explorer.load_button.click()
+        for shown in (html.unescape(b.bench_file_error.value),
+                      html.unescape(explorer.path_error.value)):
+            assert words in shown and f"<code>{text}" in shown, shown
+            assert ".toml" in shown or words != cases[0][1]
+    explorer.path_box.value = str(DEMO)
+    explorer.load_button.click()
 
 
 def test_find_file_from_a_subfolder(monkeypatch):
@@ -1407,7 +1434,8 @@ def test_crosstalk_explorer_names_the_designs_aggressor_and_its_sliders_units():
     with pytest.raises(InputError) as info:
         x.set(spacing=30e-6)
     text = info.value.message
-    assert "30 µm" in text and "50 µm" in text and "2 mm" in text
+    # the slider's ends are the search's: 0.1 h to 10 h of the demo's 0.18 mm height
+    assert "30 µm" in text and "18 µm" in text and "1.8 mm" in text
     assert "Ω" not in text and "E24" not in text
 
 
@@ -1524,3 +1552,42 @@ def test_bus_builder_supply_filter_takes_the_rail_over_its_tolerance(library):
     # part's limits, where the check passes at a margin of 0
     b.set(supply_tolerance=0.05)
     assert "(does not fit)" not in dict((v, k) for k, v in b.controller.options)["fpga-io-3v3"]
+
+
+def test_line_without_a_receiver_says_there_is_nothing_to_check(library):
+    le = LineExplorer(library, driver=("mcu-3v3", "sclk"),
+                      receivers=[("display-controller-spi", "sclk")], length=0.28)
+    for ref, _, _ in le.receivers:
+        le.remove_receiver(ref)
+    assert "nothing to check: the line has no receiver" in le.status_html.value
+    assert "PASS" not in le.status_html.value.upper().replace("PASSES", "")
+    assert le.edges.svg is None and le.waves.svg is None
+    assert "no receiver" in le.edges.widget.value
+    le.add_receiver("display-controller-spi", "sclk")
+    assert "nothing to check" not in le.status_html.value and le.edges.svg
+
+
+def test_line_supply_follows_a_driver_that_does_not_take_it(library):
+    le = LineExplorer(library, length=0.05)
+    assert le.supply.value == pytest.approx(3.3)
+    le.set(driver_part="mcu-5v")
+    typ = library.get("mcu-5v").supply.typ.value  # the part file's typical supply
+    assert le.supply.value == pytest.approx(typ) and "typical supply" in le.supply_note.value
+    # the driver (U1) within its range; a 3.3 V receiver may not be, and says so
+    assert all(c.status == "pass" for _, _, c in le.result.buses[0].all_checks()
+               if c.id == "supply-range" and c.subject == "U1")
+    le.supply.text.value = "4.5 V"  # invented test input: the user's own choice
+    assert le.supply_note.value == ""
+    le.set(driver_part="mcu-3v3")  # 4.5 V is outside a 3.3 V part's range too
+    assert le.supply.value == pytest.approx(library.get("mcu-3v3").supply.typ.value)
+
+
+def test_swap_change_list_names_a_coupling_as_the_reports_do():
+    # invented test input: a 1.8 V controller moves the crosstalk figures of the demo's
+    # coupling; its row says "beside", not the id's arrow
+    x = SwapExplorer(DEMO)
+    assert x.apply_swap("U1", "mcu-1v8") == []
+    assert any("<-" in c.path for c in x.changes.figure_changes)
+    cells = re.findall(r"<td[^>]*>([^<]*)</td>", x.changes_html.value)
+    assert "sensors.scl beside display.sclk" in cells
+    assert not any("&lt;-" in c or "<-" in c for c in cells)

@@ -121,6 +121,57 @@ def test_every_control_of_a_panel_is_in_its_widget_tree(panels, name):
     assert not missing
 
 
+@pytest.mark.parametrize("name", ["BusBuilder", "LineExplorer", "CrosstalkExplorer"])
+def test_no_slider_readout_can_be_typed_into(panels, name):
+    """A selection slider's own readout takes typed text ("150") and ignores it while it
+    goes on showing it: every slider shows its value as a label instead."""
+    panel = panels[name]
+    sliders = [w for w in _tree(panel.widget) if isinstance(w, W.SelectionSlider)]
+    assert sliders
+    assert [s.description for s in sliders if s.readout] == []
+    labels = {w.value for w in _tree(panel.widget) if isinstance(w, W.HTML)
+              and "pinlib-readout" in w._dom_classes}
+    for s in sliders:
+        shown = dict((v, label) for label, v in s.options)[s.value]
+        assert s.disabled or any(f">{html.escape(shown)}<" in v for v in labels), s.description
+
+
+def test_a_slider_label_follows_its_value(panels):
+    xt = panels["CrosstalkExplorer"]
+    slider = xt.sliders["Spacing"]
+    # invented test input: a spacing on the slider's list
+    xt.set(spacing=0.2e-3)
+    assert slider.text == "200 µm"
+    xt.set(spacing=xt.coupling.spacing)
+
+
+def test_crosstalk_sliders_reach_as_far_as_the_search(panels):
+    """The chart and the figures search the spacing from 0.1 h and the length up to 1 m:
+    the sliders reach the same ends (they stopped at 50 µm and 500 mm)."""
+    from pinlib.engines.coupling import LENGTH_SEARCH_MAX
+
+    xt = panels["CrosstalkExplorer"]
+    lo, hi = xt.result.workings.spacing_range
+    spacings = [v for _, v in xt.spacing.options]
+    assert min(spacings) == pytest.approx(lo) and max(spacings) == pytest.approx(hi)
+    assert xt.figures["spacing_searched_from"].value == pytest.approx(min(spacings))
+    lengths = [v for _, v in xt.length.options]
+    assert max(lengths) == LENGTH_SEARCH_MAX == xt.figures["length_searched_to"].value
+
+
+@pytest.mark.parametrize("name", ["BusBuilder", "LineExplorer"])
+def test_part_lists_start_where_the_other_fields_do(panels, name):
+    """The Peripheral and Receiver dropdowns and the lists of placed parts had a narrower
+    description (84 px): they started 46 px left of every other field."""
+    from pinlib.present.widgets.common import LABEL_WIDTH
+
+    panel = panels[name]
+    widths = {w.description: w.style.description_width for w in _tree(panel.widget)
+              if isinstance(w, (W.Dropdown, W.Select, W.Text)) and w.description}
+    assert widths["Supply"] == f"{LABEL_WIDTH}px"
+    assert {d: v for d, v in widths.items() if v != f"{LABEL_WIDTH}px"} == {}
+
+
 def test_hiding_the_unused_trace_fields_hides_nothing_else(library):
     b = BusBuilder(library, peripherals=["eeprom-i2c"])
     b.set(geometry="per-length")
@@ -212,6 +263,14 @@ def test_quantities_are_read_with_their_units(library):
     assert b.trace.length.value == pytest.approx(5.5 * 0.0254, rel=1e-12)
     _type(b.trace.length, "14 cm")
     assert b.error is None and b.held_html.value == ""
+
+
+def test_a_trace_width_is_given_a_width_as_its_example(library):
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    _type(b.fields["width"], "abc")  # invented test input: no number
+    # common practice, no source: a trace is some tenths of a mm wide, not "14 cm"
+    shown = html.unescape(b.fields["width"].error_html.value)
+    assert "e.g. '0.2 mm'" in shown and "14 cm" not in shown
 
 
 def test_an_empty_plain_number_is_not_asked_for_a_unit(library):
@@ -336,8 +395,21 @@ def test_protocol_change_says_what_the_mode_became(library):
     b.set(protocol="smbus")
     assert b.mode.value != "fast"
     assert "fast" in b.mode_note.value and b.mode.value in b.mode_note.value
-    b.set(protocol="i2c")  # the SMBus mode is no I2C mode either: said again
-    assert b.mode_note.value != ""
+    b.set(protocol="i2c")  # back on I2C: the I2C mode last chosen, and said
+    assert b.mode.value == "fast" and "last chosen for I2C" in b.mode_note.value
+
+
+def test_back_on_i2c_the_last_i2c_mode_is_kept(library):
+    b = BusBuilder(library, peripherals=["eeprom-i2c"])
+    b.set(mode="fast-plus")
+    b.set(protocol="smbus")
+    b.set(mode="400k")
+    b.set(protocol="i2c")
+    assert b.mode.value == "fast-plus" and "fast-plus" in b.mode_note.value
+    b.set(protocol="smbus")  # and back on SMBus, its own last mode
+    assert b.mode.value == "400k"
+    b.set(mode="1m")  # a choice of the user's: the note goes
+    assert b.mode_note.value == ""
 
 
 def test_a_note_on_what_a_change_did_goes_when_the_user_chooses_again(library):
@@ -346,11 +418,11 @@ def test_a_note_on_what_a_change_did_goes_when_the_user_chooses_again(library):
     b = BusBuilder(library, peripherals=["eeprom-i2c"])
     b.set(protocol="smbus")
     b.set(protocol="i2c")
-    assert "now" in b.mode_note.value
+    assert "last chosen" in b.mode_note.value
     b.set(mode="fast-plus")
     assert b.mode_note.value == ""
     b.set(protocol="smbus")  # said again on the next change of the options
-    assert "fast-plus" in b.mode_note.value
+    assert "last chosen" in b.mode_note.value
     # the driver's output pin on workbench 02 alike
     le = LineExplorer(library, length=0.28)
     le.driver_part.value = "nor-flash-spi"  # its one output pin is cipo

@@ -63,6 +63,8 @@ LOCK_IS_A_LINK = "its lock file {lock} is a symbolic link, which pinlib does not
 CANNOT_WRITE_IN_FOLDER = "cannot write in this folder: {reason}"
 FOLDER_NOT_WRITABLE = "the folder {folder} is not writable by this user ({user})"
 FOLDER_READ_ONLY_FS = "the folder {folder} is on a read-only file system"
+FOLDER_MISSING = "the folder {folder} does not exist"
+FOLDER_MISSING_HINT = "create it first, or name a folder that exists"
 LOCK_NOT_WRITABLE = "its lock file {lock} is not writable by this user ({user})"
 # the hint of FOLDER_NOT_WRITABLE
 WRITABLE_FOLDER_HINT = ("pinlib writes its lock file and the new file in that folder: use "
@@ -684,6 +686,7 @@ PART_NOT_FOR_OPEN_DRAIN_BUS = "the part cannot sit on an open-drain bus here"
 NO_PLACED_PART = "no placed part with this reference"
 FILE_NAME_NEEDED = "a file name is needed"
 DESIGN_PATH_NEEDED = "a design file path is needed"
+DESIGN_PATH_IS_FOLDER = "this is a folder, not a design file"
 SAVE_WOULD_OVERWRITE = "{file} exists; Save does not overwrite a file"
 SAVE_OVERWRITE_HINT = ("tick 'overwrite {name}' and press Save again to replace it, or "
                        "choose another name")

@@ -94,9 +94,19 @@ _RKM = re.compile(r"^\s*(\d*)([RKkMGmunpµμ])(\d+)\s*(.*?)\s*$"
                   r"|^\s*(\d+(?:\.\d+)?)([RKkMG])\s*$")
 
 
-def unit_name(unit: str) -> str:
-    """The words for an expected unit in messages, e.g. ``'a capacitance (e.g. 8 pF)'``."""
+#: A field's own example where its unit's (:data:`UNITS`) would mislead: a trace's width
+#: is no "14 cm" (common practice, no source: the board cross-sections of the demo
+#: designs), by unit and the field's last name.
+_FIELD_EXAMPLES = {"m": {"width": "0.2 mm", "height": "0.18 mm", "spacing": "0.2 mm",
+                         "thickness": "35 µm"}}
+
+
+def unit_name(unit: str, field: str | None = None) -> str:
+    """The words for an expected unit in messages, e.g. ``'a capacitance (e.g. 8 pF)'``;
+    the example is the field's kind's (``width``: ``'0.2 mm'``) where it has one."""
     name, example = UNITS[unit]
+    leaf = (field or "").rsplit(".", 1)[-1].lower()
+    example = _FIELD_EXAMPLES.get(unit, {}).get(leaf, example)
     return f"{name} in {unit} (e.g. '{example}')"
 
 
@@ -138,7 +148,7 @@ def _split_length(text: str) -> float | None:
 def _fail(text, unit, field, problem, hint=None):
     """The error of a refused quantity; where the hint gives the user's own number with
     a unit, the expected part leaves out the generic example (one example, not two)."""
-    expected = f"{UNITS[unit][0]} in {unit}" if hint else unit_name(unit)
+    expected = f"{UNITS[unit][0]} in {unit}" if hint else unit_name(unit, field)
     return UnitError(problem, field=field, value=text, expected=expected, hint=hint)
 
 

@@ -441,12 +441,16 @@ def _user() -> str:
 
 def _not_writable(exc: OSError, folder: Path, target: Path,
                   lock: Path | None = None) -> WriteError | None:
-    """The refusal for a write the file system denies: a folder this user may not write
-    in, one on a read-only file system, or (``lock``) a lock file left by another user;
-    None for any other failure."""
+    """The refusal for a write the file system denies: a folder that does not exist (a
+    write never creates one), a folder this user may not write in, one on a read-only
+    file system, or (``lock``) a lock file left by another user; None for any other
+    failure."""
     import errno
 
     shown = str(folder) if str(folder) else "."
+    if exc.errno == errno.ENOENT and not folder.is_dir():
+        return WriteError(M.FOLDER_MISSING.format(folder=shown), file=str(target),
+                          hint=M.FOLDER_MISSING_HINT)
     if exc.errno == errno.EROFS:
         return WriteError(M.FOLDER_READ_ONLY_FS.format(folder=shown), file=str(target))
     if exc.errno not in (errno.EACCES, errno.EPERM):

@@ -20,10 +20,10 @@ from pinlib.model.result import CAUTION, BusResult, Group, margin_text
 from pinlib.present.terminal import status_word, wrap
 from pinlib.present.values import (
     FLIGHT_HEAD,
+    check_cells,
     counts,
     figure_cells,
     flight_rows,
-    format_value,
     with_fix,
 )
 
@@ -75,8 +75,7 @@ def _checks(g: Group, indent: str, cols: int, sources: dict[str, int]) -> list[s
         return []
     rows = [["status", "check", "subject", "value", "limit", "margin", "src"]]
     for c in g.checks:
-        limit = "" if isinstance(c.limit, bool) else format_value(c.limit, c.unit)
-        value = "" if isinstance(c.value, bool) else format_value(c.value, c.unit)
+        value, limit = check_cells(c)
         ref = sources.setdefault(c.source, len(sources) + 1)
         rows.append([status_word(c.status), check_label(c.id), c.subject or "", value, limit,
                      margin_text(c), f"[{ref}]"])

@@ -6,7 +6,7 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 
-from pinlib.core.labels import figure_label, shown_figures
+from pinlib.core.labels import figure_label, plural_s, shown_figures
 from pinlib.core.quantity import format_value
 from pinlib.model.result import BusResult, Check, DesignResult, Figure, figure_text
 
@@ -63,6 +63,37 @@ def _text(name: str, f: Figure) -> str:
 
         return figure_value_text(name, f.value, f.unit)
     return figure_text(f)
+
+
+def _modes(modes) -> str:
+    modes = sorted(int(m) for m in modes)
+    return f"mode{plural_s(len(modes))} {', '.join(map(str, modes))}"
+
+
+#: A yes/no check whose details say what was held against what: its value and limit
+#: cells, by check id (the SPI mode against the modes the part states).
+_COMPARED = {
+    "spi-mode": lambda d: (f"mode {int(d['mode'])}", _modes(d["modes"]))
+    if "mode" in d and "modes" in d else None,
+}
+
+
+def check_cells(c: Check, *, answer: bool = False) -> tuple[str, str]:
+    """A check's value and limit cells, as every table writes them (the text, the
+    report, the widgets).
+
+    A number is written with its unit.  A yes/no check whose details say what was
+    compared shows that ("mode 1" against "modes 0, 3"); another one shows its answer
+    ("yes", "no") where ``answer`` (the report's table), else nothing, and no limit."""
+    if isinstance(c.value, bool):
+        details = c.details if isinstance(c.details, dict) else {}
+        make = _COMPARED.get(c.id)
+        shown = make(details) if make is not None else None
+        if shown is not None:
+            return shown
+        return ("yes" if c.value else "no") if answer else "", ""
+    limit = "" if isinstance(c.limit, bool) else format_value(c.limit, c.unit)
+    return format_value(c.value, c.unit), limit
 
 
 def limit_side(c: Check) -> str:

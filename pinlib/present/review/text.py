@@ -7,7 +7,7 @@ from pinlib.core import messages as M
 from pinlib.model.result import BusResult, Check, DesignResult, margin_text
 from pinlib.present.report import format_value
 from pinlib.present.review.draw import _slug
-from pinlib.present.values import with_fix
+from pinlib.present.values import check_cells, with_fix
 
 _MARK = {"pass": "PASS", "warn": "WARN", "fail": "FAIL"}
 _STATUS_WORD = {"pass": "passes", "warn": "passes with a margin under the warning threshold",
@@ -25,11 +25,9 @@ def _value(value, unit: str) -> str:
 
 
 def _check_cells(c: Check) -> tuple[str, str]:
-    """A check's value and limit as text; a yes/no check shows its answer and no limit."""
-    value = ("yes" if c.value else "no") if isinstance(c.value, bool) else _value(c.value,
-                                                                                   c.unit)
-    limit = "" if isinstance(c.limit, bool) else _value(c.limit, c.unit)
-    return value, limit
+    """A check's value and limit as text; a yes/no check shows what it compared, or its
+    answer, and no limit (:func:`pinlib.present.values.check_cells`)."""
+    return check_cells(c, answer=True)
 
 
 def _message(c: Check) -> str:

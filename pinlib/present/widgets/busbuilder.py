@@ -27,7 +27,9 @@ from pinlib.present.widgets.choices import choice_line, with_button_below
 from pinlib.present.widgets.common import (
     ChartView,
     QuantityField,
+    Slider,
     StaticView,
+    _clear_on_next_choice,
     _closest_option,
     _e24_options,
     _num,
@@ -35,6 +37,7 @@ from pinlib.present.widgets.common import (
     _values,
     block_layout,
     button_layout,
+    design_path,
     field_layout,
     find_file,
     heading,
@@ -201,6 +204,7 @@ class BusBuilder(_Panel):
             1 if protocol == "i2c" else 0], description="Mode", style=style(),
             layout=field_layout())
         self.mode_note = note_widget()
+        self._modes_chosen: dict[str, str] = {}  # the mode last chosen, by protocol
         self.supply = q(QuantityField("supply", "Supply", "V", supply, lo=0.8, hi=5.5,
                                       placeholder="3.3 V"),
                         lambda _f: self._filters_changed())
@@ -246,9 +250,8 @@ class BusBuilder(_Panel):
                                            description="Choose Rp",
                                            style=style(button_width="72px"),
                                         layout=toggle_layout())
-        self.pullup = W.SelectionSlider(options=_e24_options(100.0, 100e3), value=4700.0,
-                                        description="Rp (E24)", continuous_update=False,
-                                        style=style(), layout=field_layout())
+        self.pullup_slider = Slider("Rp (E24)", _e24_options(100.0, 100e3), 4700.0)
+        self.pullup = self.pullup_slider.control
         self.pullup_tolerance = q(QuantityField("pullup_tolerance", "Rp ±", "%", 0.01,
                                                 lo=0.0, hi=0.2, placeholder="1 %"))
 
@@ -389,9 +392,25 @@ class BusBuilder(_Panel):
         self.pick_fit.value = notice(e(why)) if why else ""
 
     def _protocol_changed(self, change=None) -> None:
+        """Another protocol: its modes.  Back on a protocol chosen before, the mode is the
+        one last chosen there (fast-plus, not standard, after a look at SMBus), and the
+        note under Mode says so; on another, :func:`set_options` says what it became."""
+        old = change["old"] if change else None
+        if old in MODES and self.mode.value in MODES[old]:
+            self._modes_chosen[old] = self.mode.value
+        modes = list(MODES[self.protocol.value])
+        back = self._modes_chosen.get(self.protocol.value)
         with self._hold():
-            set_options(self.mode, list(MODES[self.protocol.value]), self.mode.value,
-                        what="Mode", said=self.mode_note)
+            if back in modes and back != self.mode.value:
+                self.mode.options = modes
+                self.mode.value = back
+                self.mode_note.value = notice(
+                    f"Mode <b>{e(back)}</b>: the one last chosen for "
+                    f"{e(self.protocol.value.upper())}.")
+                _clear_on_next_choice(self.mode, self.mode_note)
+            else:
+                set_options(self.mode, modes, self.mode.value, what="Mode",
+                            said=self.mode_note)
         self._changed()
 
     def _set_mode(self, value) -> None:
@@ -578,13 +597,8 @@ class BusBuilder(_Panel):
         self.bench_line.value = value
 
     def _bench_load_clicked(self) -> None:
-        path = self.bench_file.value.strip()
         try:
-            if not path or path_kind(path)[0] == FOLDER:
-                raise InputError(M.DESIGN_PATH_NEEDED, field="design",
-                                 value=path or None,
-                                 expected="a design file path such as "
-                                          "designs/gpio-reset-board.toml")
+            path = design_path(self.bench_file.value, "designs/gpio-reset-board.toml")
             self.load_bench_design(path)
         except PinlibError as err:
             # where, as the command names it (the file and line, the field)
@@ -711,7 +725,7 @@ class BusBuilder(_Panel):
             self.pick_fit, self.pick_note,
             with_button_below(self.placed, self.remove_button),
             heading("Trace"), self.trace.box, self.extra_capacitance.box,
-            heading("Pull-up"), self.pullup_mode, self.pullup, self.pullup_tolerance.box,
+            heading("Pull-up"), self.pullup_mode, self.pullup_slider.box, self.pullup_tolerance.box,
             heading("Bench: a measured rise"),
             with_button_below(self.bench_file, self.bench_load), self.bench_file_error,
             self.bench_line, choice_line(self.bench_line), self.bench_line_note,

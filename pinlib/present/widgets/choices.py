@@ -8,20 +8,15 @@ import ipywidgets as W
 from pinlib.present.widgets.common import COLUMN_WIDTH, LABEL_WIDTH, _label_of
 from pinlib.present.widgets.markup import BLOCK, e
 
-#: The description of a control with its button under it (a list of parts, the
-#: dropdown parts are picked from, a file name): narrower than a field's, so that the
-#: control has room for the longest part id with its pin, "U4  board-to-board-connector:
-#: copi" (about 230 px), or a path such as "designs/sensor-board-rev-c.toml". [px]
-LIST_LABEL_WIDTH = 84
-
 
 def with_button_below(control, button) -> W.VBox:
     """A list, the dropdown parts are picked from or a file name, with its button under
     it at the right: the control keeps the column's width (a button beside it left too
     little room for an item such as "U2 display-controller-spi sclk", 108 px of a
-    dropdown for "board-to-board-connector", 136 px of a path), and its description
-    is narrower than a field's (:data:`LIST_LABEL_WIDTH`)."""
-    control.style.description_width = f"{LIST_LABEL_WIDTH}px"
+    dropdown for "board-to-board-connector", 136 px of a path).  Its description is a
+    field's (:data:`~pinlib.present.widgets.common.LABEL_WIDTH`), so it starts where
+    every other field does (a narrower one set it 46 px to the left)."""
+    control.style.description_width = f"{LABEL_WIDTH}px"
     return W.VBox([control, W.HBox([button], layout=W.Layout(
         width="auto", justify_content="flex-end", max_width=f"{COLUMN_WIDTH}px"))],
         layout=W.Layout(width="auto"))

@@ -38,7 +38,7 @@ import ipywidgets as W
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.eseries import values_in_range
-from pinlib.core.pathkind import MISSING, UNREADABLE, path_kind
+from pinlib.core.pathkind import FOLDER, MISSING, UNREADABLE, path_kind
 from pinlib.core.quantity import format_si, likely_units, parse
 from pinlib.present import charts
 from pinlib.present.widgets.markup import (
@@ -57,7 +57,7 @@ _ids = itertools.count(1)
 #: Width of a control's description. [px]
 LABEL_WIDTH = 130
 #: Width of the control column. [px]
-COLUMN_WIDTH = 360
+COLUMN_WIDTH = 380
 
 
 # =========================================================================== layouts
@@ -120,6 +120,65 @@ def heading(text: str) -> W.HTML:
 def note_widget() -> W.HTML:
     """An HTML line under a control, empty until there is something to say."""
     return W.HTML(layout=W.Layout(width="auto", max_width=f"{COLUMN_WIDTH}px"))
+
+
+# =========================================================================== sliders
+
+
+class Slider:
+    """A slider over a list of values (:class:`ipywidgets.SelectionSlider`) whose value is
+    shown as plain text beside it.
+
+    ipywidgets' own readout can be typed into, but a selection slider ignores what is
+    typed and goes on showing it ("150" beside a chart still drawn at 100 µm); every
+    slider of the workbenches is made here, its readout turned off and replaced by a
+    label that cannot be edited.  A value is typed into a :class:`QuantityField`, never
+    into a slider.
+
+    Attributes
+    ----------
+    control : ipywidgets.SelectionSlider
+        The slider (``readout`` False).
+    label : ipywidgets.HTML
+        The value shown: the option's label, empty while :attr:`shown` is False.
+    box : ipywidgets.HBox
+        The slider and its label, the width of the control column.
+    """
+
+    def __init__(self, description: str, options, value):
+        self.control = W.SelectionSlider(
+            options=options, value=value, description=description, readout=False,
+            continuous_update=False, style=style(),
+            layout=W.Layout(width="auto", flex="1 1 auto", min_width="0"))
+        self.label = W.HTML(layout=W.Layout(width="72px", min_width="72px", flex="0 0 auto",
+                                            margin="0 0 0 4px"))
+        self.label.add_class("pinlib-readout")
+        self.box = W.HBox([self.control, self.label],
+                          layout=W.Layout(width="auto", max_width=f"{COLUMN_WIDTH}px",
+                                          align_items="center"))
+        self._shown = True
+        self.control.observe(lambda _c: self._show(), names=["value", "options"])
+        self._show()
+
+    @property
+    def shown(self) -> bool:
+        """Whether the value is written beside the slider."""
+        return self._shown
+
+    @shown.setter
+    def shown(self, on: bool) -> None:
+        self._shown = bool(on)
+        self._show()
+
+    @property
+    def text(self) -> str:
+        """The value as shown (empty while it is hidden)."""
+        return self.label.value and _label_of(self.control.options, self.control.value)
+
+    def _show(self) -> None:
+        self.label.value = (f'<span style="white-space:nowrap">'
+                            f"{e(_label_of(self.control.options, self.control.value))}</span>"
+                            if self._shown else "")
 
 
 # =========================================================================== quantities
@@ -442,6 +501,21 @@ def find_file(path: str | os.PathLike) -> Path:
             return base / p
     raise InputError(M.FILE_NOT_FOUND, file=str(p),
                      hint="looked in the working folder and each folder above it")
+
+
+def design_path(text: str, example: str) -> str:
+    """The path typed into a Design box, for Load; an InputError naming it when it is
+    empty or a folder ("designs": a .toml file is expected).  Every panel shows a
+    refused Load with :func:`~pinlib.present.widgets.markup.error_html`, which names the
+    file (and its line) as the command does."""
+    path = text.strip()
+    if not path:
+        raise InputError(M.DESIGN_PATH_NEEDED, field="Design",
+                         expected=f"a design file path such as {example}")
+    if path_kind(path)[0] == FOLDER:  # (a name the system will not look up is no folder)
+        raise InputError(M.DESIGN_PATH_IS_FOLDER, file=path,
+                         expected=f"a design file (.toml), such as {example}")
+    return path
 
 
 class StaticView:

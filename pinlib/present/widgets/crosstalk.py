@@ -9,17 +9,17 @@ import ipywidgets as W
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
 from pinlib.core.quantity import format_si
-from pinlib.engines.coupling import evaluate_coupling
+from pinlib.engines.coupling import LENGTH_SEARCH_MAX, evaluate_coupling
 from pinlib.engines.dispatch import evaluate_bus
 from pinlib.model.design import Aggressor, load_design
 from pinlib.present import charts, plotdata
 from pinlib.present.widgets.common import (
     ChartView,
+    Slider,
     StaticView,
     _closest_option,
     _Panel,
     block_layout,
-    field_layout,
     find_file,
     heading,
     style,
@@ -39,7 +39,8 @@ __all__ = ["CrosstalkExplorer"]
 #: The slider positions (common practice, no source: a board's usual gaps, runs, edges).
 SPACINGS = (0.05e-3, 0.075e-3, 0.1e-3, 0.15e-3, 0.2e-3, 0.25e-3, 0.3e-3, 0.4e-3, 0.5e-3,
             0.75e-3, 1e-3, 1.5e-3, 2e-3)
-LENGTHS = (0.01, 0.02, 0.03, 0.04, 0.06, 0.08, 0.1, 0.15, 0.2, 0.3, 0.5)
+LENGTHS = (0.01, 0.02, 0.03, 0.04, 0.06, 0.08, 0.1, 0.15, 0.2, 0.3, 0.5, 0.75,
+           LENGTH_SEARCH_MAX)
 EDGES = (0.2e-9, 0.3e-9, 0.5e-9, 0.75e-9, 1e-9, 1.5e-9, 2e-9, 3e-9, 5e-9, 10e-9)
 
 
@@ -47,9 +48,16 @@ EDGES = (0.2e-9, 0.3e-9, 0.5e-9, 0.75e-9, 1e-9, 1.5e-9, 2e-9, 3e-9, 5e-9, 10e-9)
 _UNITS = {"spacing": "m", "length": "m", "edge_time": "s"}
 
 
-def _options(values, unit: str, own: float) -> list[tuple[str, float]]:
-    """Slider options: the usual values and the design's own."""
-    got = sorted(set(values) | {float(own)})
+def _options(values, unit: str, own: float, within: tuple[float, float] | None = None
+             ) -> list[tuple[str, float]]:
+    """Slider options: the usual values and the design's own; with ``within``, the usual
+    values inside it and its two ends (the range the engine searches and the chart
+    draws), so the slider reaches as far as the chart, and no further."""
+    got = set(values)
+    if within is not None:
+        lo, hi = (float(x) for x in within)
+        got = {v for v in got if lo <= v <= hi} | {lo, hi}
+    got = sorted(got | {float(own)})
     return [(format_si(v, unit), v) for v in got]
 
 
@@ -112,7 +120,11 @@ class CrosstalkExplorer(_Panel):
         self.figures: dict = {}
         self.sweep = self.waves = None
         c = self.coupling
-        self.spacing = self._slider("Spacing", _options(SPACINGS, "m", c.spacing), c.spacing)
+        self.sliders: dict[str, Slider] = {}  # by label
+        # the spacing from where the search starts to where it ends (the chart's axis)
+        searched = first.workings.spacing_range
+        self.spacing = self._slider("Spacing", _options(SPACINGS, "m", c.spacing, searched),
+                                    c.spacing)
         self.length = self._slider("Parallel length", _options(LENGTHS, "m", c.length),
                                    c.length)
         edge = self.aggressor.edge_time
@@ -136,9 +148,9 @@ class CrosstalkExplorer(_Panel):
         self._show(first)
 
     def _slider(self, label: str, options, value) -> W.SelectionSlider:
-        return W.SelectionSlider(options=options, value=value, description=label,
-                                 continuous_update=False, style=style(),
-                                 layout=field_layout())
+        slider = Slider(label, options, value)
+        self.sliders[label] = slider
+        return slider.control
 
     def _set_slider(self, name: str, value) -> None:
         slider = getattr(self, name)
@@ -231,8 +243,9 @@ class CrosstalkExplorer(_Panel):
                           + waves + self.figures_html.value + self.checks_html.value)
 
     def _layout(self) -> W.Widget:
-        controls = [heading("The run"), self.spacing, self.length,
-                    heading("The aggressor"), self.edge_time,
+        box = {label: s.box for label, s in self.sliders.items()}
+        controls = [heading("The run"), box["Spacing"], box["Parallel length"],
+                    heading("The aggressor"), box["Aggressor edge"],
                     heading("Waveforms"), self.show]
         outputs = [self.held_html, self.status_html, self.noise_chart.widget,
                    *(v.widget for v in self.wave_charts.values()), self.figures_html,

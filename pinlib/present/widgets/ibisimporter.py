@@ -13,7 +13,9 @@ into the built-in library).  Nothing here computes a value.
 
 from __future__ import annotations
 
+import copy
 import os
+import re
 from pathlib import Path
 
 import ipywidgets as W
@@ -49,6 +51,30 @@ from pinlib.present.widgets.markup import (
 #: The choice of a pin that is not imported.
 SKIP = "(not imported)"
 _WIDTH = "400px"
+#: The IBIS file's row (the field and its button): room for a path of some 80 characters.
+_FILE_ROW = "860px"
+
+#: The panel's label of each field the import names as the command's option (or as the
+#: part file's key): a message here names what the user sees.
+_LABELS = {"--component": "Component", "--category": "Category", "--pin": "pin functions",
+           "--id": "Part id", "id": "Part id", "--i-ol": "i_ol", "--into": "team folder"}
+#: Hints written for the command, as the panel says them.
+_HINTS = {"choose another id with --id": "choose another Part id",
+          "name a team library folder with --into":
+              "the part is written into the panel's team folder; open the panel on "
+              "another folder"}
+
+
+def for_panel(err: PinlibError) -> PinlibError:
+    """``err`` naming the panel's fields by their labels ("Component", "Part id"), never
+    by the command's options ("--component", "--id")."""
+    err = copy.copy(err)
+    err.field = _LABELS.get(err.field, err.field)
+    if err.hint:
+        hint = _HINTS.get(err.hint, err.hint)
+        err.hint = re.sub(r"--[a-z][a-z-]*", lambda m: _LABELS.get(m.group(0), m.group(0)),
+                          hint)
+    return err
 
 
 def _s() -> dict:
@@ -87,7 +113,11 @@ class IbisImporter(_Panel):
         self.text: str | None = None
         self.warnings: list[str] = []
         self.written: Path | None = None
-        self.file = W.Text(placeholder="path/to/part.ibs", description="IBIS file", **_s())
+        self._read_line = ""  # what the last read said
+        # a path is longer than an id: the field takes the width beside its button
+        self.file = W.Text(placeholder="path/to/part.ibs", description="IBIS file",
+                           style=style(), layout=W.Layout(width="auto", flex="1 1 auto",
+                                                          min_width=_WIDTH, max_width="100%"))
         self.read_button = W.Button(description="Read the file", layout=button_layout("160px"))
         self.component = W.Dropdown(options=[], description="Component", **_s())
         self.new_id = W.Text(placeholder="io-buffer-acme", description="Part id", **_s())
@@ -103,8 +133,10 @@ class IbisImporter(_Panel):
         self.read_button.on_click(lambda _b: self.read())
         self.preview_button.on_click(lambda _b: self.preview())
         self.write_button.on_click(lambda _b: self.write())
-        self.component.observe(lambda _c: self._pins_of_component(), names="value")
-        form = W.VBox([W.HBox([self.file, self.read_button]), self.component,
+        self.component.observe(lambda _c: self._component_chosen(), names="value")
+        form = W.VBox([W.HBox([self.file, self.read_button],
+                              layout=W.Layout(width="100%", max_width=_FILE_ROW,
+                                              align_items="center")), self.component,
                        W.HTML(block("The function of each pin (guessed from its signal "
                                     "name; pins left out are not imported):")),
                        self.pin_box, self.new_id, self.category, self.i_ol,
@@ -148,14 +180,28 @@ class IbisImporter(_Panel):
         except PinlibError as err:
             self.ibis = None
             self.component.options = []
-            self.message.value = error_html(err)
+            self._pins_of_component()
+            self.message.value = error_html(for_panel(err))
             return False
-        self.message.value = block(f"read {e(self.file.value.strip())}: IBIS "
-                                   f"{e(self.ibis.header.get('ibis ver', '?'))}, file rev "
-                                   f"{e(self.ibis.file_rev or '?')}")
-        self.component.options = list(self.ibis.components)
+        components = list(self.ibis.components)
+        self.component.options = components
+        if self.component.value not in components and components:
+            # after a refused read the list was empty and its value None: the first
+            # component is chosen, as on a first read
+            self.component.value = components[0]
+        self._read_line = block(f"read {e(self.file.value.strip())}: IBIS "
+                                f"{e(self.ibis.header.get('ibis ver', '?'))}, file rev "
+                                f"{e(self.ibis.file_rev or '?')}")
         self._pins_of_component()
+        self.message.value = self._read_line
         return True
+
+    def _component_chosen(self) -> None:
+        """Another component: its pins, and a message about the last one's preview or
+        write gone (it is no longer about what is shown)."""
+        self._pins_of_component()
+        if self.ibis is not None:
+            self.message.value = self._read_line
 
     def _pins_of_component(self) -> None:
         from pinlib.library.pinguess import guess_function
@@ -203,7 +249,7 @@ class IbisImporter(_Panel):
                                   warnings=self.warnings, **self._arguments())
         except PinlibError as err:
             self.text = None
-            self.message.value = error_html(err)
+            self.message.value = error_html(for_panel(err))
             return None
         self.message.value = "".join(block(f"warning: {e(w)}") for w in self.warnings)
         self.preview_html.value = values_table(self.text)
@@ -223,7 +269,7 @@ class IbisImporter(_Panel):
                                self.mapping(), self.new_id.value.strip(), self.folder,
                                warnings=written, **self._arguments())
         except PinlibError as err:
-            self.message.value = error_html(err)
+            self.message.value = error_html(for_panel(err))
             return None
         self.written = path
         self.warnings = [w for w in written if w not in self.warnings] + self.warnings
@@ -258,6 +304,24 @@ def _rows(prefix: str, table: dict):
             yield path, str(value), "", "", ""
 
 
+#: A quantity as the part file writes it: a number with a decimal point, then its unit.
+_QUANTITY = re.compile(r"([+-]?\d+\.\d+) ?([A-Za-zµΩ%]{1,4})")
+
+
+def _cell(style: str, text, *, number: bool) -> str:
+    """A cell of the values table: a quantity with three significant digits, as every
+    table of pinlib shows figures ("1.27 ns"; the file keeps six, "1.27329 ns", shown as
+    the cell's tooltip)."""
+    text = str(text)
+    m = _QUANTITY.fullmatch(text.strip()) if number and len(text) < 40 else None
+    if m is None:
+        return f'<td style="{style}">{e(text)}</td>'
+    shown = f"{float(m.group(1)):.3g} {m.group(2)}"
+    if shown == text.strip() or "e" in shown.split()[0]:
+        return f'<td style="{style}">{e(text)}</td>'
+    return f'<td style="{style}" title="{e(text)}, as written in the file">{e(shown)}</td>'
+
+
 def values_table(text: str) -> str:
     """An HTML table of the values of a part file's text, each with its provenance."""
     data = tomllib.loads(text)
@@ -265,8 +329,9 @@ def values_table(text: str) -> str:
     # the value and typ columns as the figures tables' (a quantity never wraps)
     styles = (CELL, NUM, NUM, CELL, CELL)
     rows = "".join(
-        "<tr>" + "".join(f'<td style="{st}">{e(c)}</td>'
-                         for st, c in zip(styles, row, strict=True)) + "</tr>"
+        "<tr>" + "".join(_cell(st, c, number=i in (1, 2))
+                         for i, (st, c) in enumerate(zip(styles, row, strict=True)))
+        + "</tr>"
         for row in _rows("", body))
     head = "".join(f'<th style="{HEAD}">{h}</th>'
                    for h in ("field", "value", "typ", "basis", "source"))

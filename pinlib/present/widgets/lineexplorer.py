@@ -11,6 +11,7 @@ import tomlkit
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
+from pinlib.core.quantity import format_si
 from pinlib.engines.dispatch import check_design
 from pinlib.library import load_library
 from pinlib.library.loader import Library
@@ -19,6 +20,7 @@ from pinlib.present.widgets.choices import choice_line, with_button_below
 from pinlib.present.widgets.common import (
     ChartView,
     QuantityField,
+    Slider,
     StaticView,
     _closest_option,
     _e24_options,
@@ -48,12 +50,16 @@ from pinlib.present.widgets.markup import (
     e,
     error_html,
     figures_table,
+    note,
     notes_html,
     notice,
     status_line,
 )
 
 # =========================================================================== line explorer
+
+#: What the status line says, and the charts, while no receiver is placed.
+NO_RECEIVER = "nothing to check: the line has no receiver (add one under Receivers)"
 
 
 class LineExplorer(_Panel):
@@ -140,14 +146,16 @@ class LineExplorer(_Panel):
         self.placed_note = note_widget()  # receivers placed for another pin function
         self.supply = self._quantity(QuantityField("supply", "Supply", "V", supply, lo=0.8,
                                                    hi=5.5, placeholder="3.3 V"))
+        self.supply_note = note_widget()  # the supply following the driver's
+        self.supply.on_change = lambda _f: (setattr(self.supply_note, "value", ""),
+                                            self._changed())
         self.trace = _Trace(self, length=length, max_length=2.0, min_length=0.005)
         self.series_mode = W.ToggleButtons(options=["auto", "none", "fixed"], value="auto",
                                            description="Series R",
                                            style=style(button_width="64px"),
                                         layout=toggle_layout())
-        self.series = W.SelectionSlider(options=_e24_options(1.0, 1000.0), value=33.0,
-                                        description="Rs (E24)", continuous_update=False,
-                                        style=style(), layout=field_layout())
+        self.series_slider = Slider("Rs (E24)", _e24_options(1.0, 1000.0), 33.0)
+        self.series = self.series_slider.control
         self.placement = W.ToggleButtons(options=["far end", "daisy chain"], value=placement
                                          if placement in ("far end", "daisy chain")
                                          else "far end", description="Receivers at",
@@ -204,7 +212,34 @@ class LineExplorer(_Panel):
         with self._hold():
             set_options(self.driver_pin, pins, self.driver_pin.value, what="Output pin",
                         said=self.pin_note)
+            if change is not None:
+                self._follow_supply(part)
         self._pin_changed()
+
+    def _follow_supply(self, part) -> None:
+        """Another driver: a supply outside its range becomes its typical supply (a 5 V
+        part at 3.3 V failed on its supply with nothing said), and the note under Supply
+        says so; without a typical supply the note points at Supply."""
+        sup = None if part is None else part.supply_for(None)
+        self.supply_note.value = ""
+        if sup is None or self.supply.value is None:
+            return
+        lo, hi = sup.min.value, sup.max.value
+        now = self.supply.value
+        if lo <= now <= hi:
+            return
+        name = e(self.driver_part.value)
+        span = f"{format_si(lo, 'V')} to {format_si(hi, 'V')}"
+        typ = None if sup.typ is None else sup.typ.value
+        if typ is not None and self.supply._in_range(typ):
+            self.supply.set_value(typ)
+            self.supply_note.value = notice(
+                f"Supply set to <b>{e(format_si(typ, 'V'))}</b>, the typical supply of "
+                f"{name} ({span}); it was {e(format_si(now, 'V'))}.")
+        else:
+            self.supply_note.value = notice(
+                f"Supply {e(format_si(now, 'V'))} is outside {name}'s range ({span}): "
+                "change <b>Supply</b>.")
 
     def _pin_changed(self, change=None) -> None:
         part = self.library.parts.get(self.driver_part.value)
@@ -330,11 +365,18 @@ class LineExplorer(_Panel):
         self.figures = dict(self.line_result.figures)
         self.edge_data, self.wave_data = edge, wave
         self._show_series()
-        self._draw_edges(edge)
-        self._draw_waves(wave)
-        self.status_html.value = status_line(br, f"Line from {edge.driver} "
-                                                  f"({self.driver_part.value} "
-                                                  f"{self.driver_pin.value})")
+        if self._receivers:
+            self._draw_edges(edge)
+            self._draw_waves(wave)
+            self.status_html.value = status_line(br, f"Line from {edge.driver} "
+                                                      f"({self.driver_part.value} "
+                                                      f"{self.driver_pin.value})")
+        else:
+            # a PASS would say the line was checked, and the charts' "far end" would be a
+            # receiver that is not there
+            for view in (self.edges, self.waves):
+                view.clear(NO_RECEIVER)
+            self.status_html.value = note(NO_RECEIVER)
         self.figures_html.value = figures_table(self.figures)
         self.checks_html.value = checks_table(br)
         self.notes_html.value = notes_html([br, self.line_result])
@@ -363,7 +405,7 @@ class LineExplorer(_Panel):
         self.series.disabled = mode != "fixed"
         rs = self.figures.get("series_resistor")
         used = mode == "fixed" or (mode == "auto" and rs is not None and bool(rs.value))
-        self.series.readout = used
+        self.series_slider.shown = used
         self.series.description = "Rs (E24)" if used else "Rs: none"
         if mode == "auto" and used:
             with self._hold():
@@ -402,13 +444,13 @@ class LineExplorer(_Panel):
     def _layout(self) -> W.Widget:
         controls = [
             self.driver_part, choice_line(self.driver_part), self.driver_pin, self.pin_note,
-            self.supply.box,
+            self.supply.box, self.supply_note,
             heading("Receivers"), self.any_function,
             with_button_below(self.pick, self.add_button),
             choice_line(self.pick), self.pick_note,
             with_button_below(self.placed, self.remove_button), self.placed_note,
             heading("Trace"), self.trace.box,
-            heading("Termination"), self.series_mode, self.series,
+            heading("Termination"), self.series_mode, self.series_slider.box,
             heading("Placement"), self.placement, self.receiver_view,
             choice_line(self.receiver_view),
         ]

@@ -16,8 +16,7 @@ from pinlib.core import labels
 from pinlib.core.errors import PinlibError
 from pinlib.model.result import CAUTION, BusResult, Group, figure_text, margin_text
 from pinlib.present import charts
-from pinlib.present.report import format_value
-from pinlib.present.values import limit_side, search_bound_words
+from pinlib.present.values import check_cells, limit_side, search_bound_words
 
 STATUS_TEXT = {"pass": "PASS", "warn": "WARN", "fail": "FAIL"}
 _BORDER = "border:1px solid #c8c8c8;padding:1px 6px;vertical-align:top"
@@ -121,8 +120,7 @@ def checks_table(bus_result: BusResult, caption: str = "Checks", name: str | Non
     for seg, sig, c in bus_result.all_checks():
         where = " ".join(str(x) for x in (seg or sig or name or bus_result.id, c.subject)
                          if x)
-        value = "" if isinstance(c.value, bool) else format_value(c.value, c.unit)
-        limit = "" if isinstance(c.limit, bool) else format_value(c.limit, c.unit)
+        value, limit = check_cells(c)
         if limit_side(c):
             # the side of the limit the value keeps: a window check's nearer end is a
             # minimum on one row and a maximum on the next

@@ -41,6 +41,7 @@ from pinlib.present.widgets.markup import (
     error_html,
     note,
     notes_html,
+    notice,
     status_line,
 )
 
@@ -134,6 +135,7 @@ class SpiBudget(_Panel):
         self.spi_mode = W.ToggleButtons(options=[0, 1, 2, 3], value=0, description="SPI mode",
                                         style=style(button_width="48px"),
                                         layout=toggle_layout())
+        self.mode_note = note_widget()  # the devices that do not take the mode
         self.chart = ChartView()
         self.max_html = W.HTML(layout=block_layout())
         self.limits_html = W.HTML(layout=block_layout())
@@ -147,7 +149,7 @@ class SpiBudget(_Panel):
         self.widget = W.VBox([
             self._header("SPI timing budget"),
             self._columns([self.bus, self.bus_note, self.clock.box, self.spi_mode,
-                           self.max_html, self.limits_html],
+                           self.mode_note, self.max_html, self.limits_html],
                           [self.held_html, self.status_html, self.chart.widget,
                            self.notes_html], [self.checks_html])],
             layout=W.Layout(width="100%"))
@@ -187,6 +189,7 @@ class SpiBudget(_Panel):
         except PinlibError as err:
             self.design = self.bus_result = self.analysis = self.budget_data = None
             self.figures, self.limits = {}, []
+            self.mode_note.value = ""
             self._failed(err, [self.chart])
             return
         self.error = None
@@ -212,8 +215,22 @@ class SpiBudget(_Panel):
         self.status_html.value = status_line(br, f"Bus {br.id} at "
                                                   f"{format_si(bus.clock, 'Hz')}")
         self._show_limits()
+        self._show_mode(br)
         self.checks_html.value = checks_table(br)
         self.notes_html.value = notes_html([br] + list(br.lines))
+
+    def _show_mode(self, br: BusResult) -> None:
+        """Under the mode: the devices that do not take it (the budget's bars and the
+        highest clock do not depend on the mode, so nothing else shows why it fails)."""
+        refused = [c for _, _, c in br.all_checks() if c.id == "spi-mode" and c.status != "pass"]
+        if not refused:
+            self.mode_note.value = ""
+            return
+        said = "; ".join(e(c.message) for c in refused)
+        fix = refused[0].advice
+        self.mode_note.value = notice(
+            f"<b>FAIL</b>: {said}. The timing budget and the highest clock do not depend "
+            "on the mode" + (f"; {e(fix)}" if fix else "") + ".")
 
     @staticmethod
     def _limits(sa, br: BusResult) -> list[ClockLimit]:

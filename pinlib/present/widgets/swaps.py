@@ -17,9 +17,8 @@ import ipywidgets as W
 import numpy as np
 
 from pinlib.core import messages as M
-from pinlib.core.errors import InputError, PinlibError
+from pinlib.core.errors import PinlibError
 from pinlib.core.labels import check_label, figure_label, plural_s, short_label
-from pinlib.core.pathkind import FOLDER, path_kind
 from pinlib.core.protocols import is_open_drain
 from pinlib.core.quantity import format_si
 from pinlib.engines.dispatch import check_design
@@ -34,6 +33,7 @@ from pinlib.present.widgets.common import (
     _values,
     block_layout,
     button_layout,
+    design_path,
     field_layout,
     find_file,
     heading,
@@ -54,7 +54,6 @@ from pinlib.present.widgets.markup import (
     checks_table,
     e,
     error_html,
-    inline_error,
     note,
     notice,
 )
@@ -196,15 +195,11 @@ class SwapExplorer(_Panel):
         set_options(self.ref, labels, self.ref.value)
 
     def _load_clicked(self) -> None:
-        path = self.path_box.value.strip()
         try:
-            if not path or path_kind(path)[0] == FOLDER:
-                raise InputError(M.DESIGN_PATH_NEEDED, field="design", value=path or None,
-                                 expected="a design file path such as "
-                                          "designs/demo-board.toml")
-            self.load(path)
+            self.load(design_path(self.path_box.value, "designs/demo-board.toml"))
         except PinlibError as err:
-            self.path_error.value = inline_error(err)
+            # as workbook 01's Load: the file (and line) named, as the command names it
+            self.path_error.value = error_html(err)
             self.load_error = err
             self._show_held()
             return
@@ -355,12 +350,14 @@ class SwapExplorer(_Panel):
         return sorted(ids, key=lambda b: (b not in changed, ids.index(b)))
 
     def _place(self, path: str) -> str:
-        """Where in its group a change lies: the segment or line of a bus, a coupling's
-        id, "bus" for the bus itself."""
+        """Where in its group a change lies: the segment or line of a bus, a coupling as
+        the reports name it ("sensors.scl beside display.sclk", not its id
+        ``sensors.scl<-display.sclk``), "bus" for the bus itself."""
         head, _, rest = path.partition("/")
         if any(b.id == head for b in self.design.buses):
             return rest or "bus"
-        return path
+        victim, arrow, aggressor = path.partition("<-")
+        return f"{victim} beside {aggressor}" if arrow else path
 
     def _changes_html(self) -> str:
         cl = self.changes
