@@ -1486,3 +1486,33 @@ devices = [
     assert bus.figures["v_ol"].value == pytest.approx(want, rel=1e-9)
     assert vol.status == "fail" and vol.value >= want * 0.94  # rail at its minimum there
     assert "at most its IOL above its VOL" in vol.message
+
+
+def test_the_pull_up_power_takes_the_sink_at_its_resistance_past_its_rating(tmp_path):
+    # invented: a 300 Ω pull-up on 3.3 V that draws past the controller's rated 8 mA at
+    # 0.4 V. The low level is where the pull-up carries 8 mA (the sink guarantees no
+    # more); the pull-up's power stays the most it can draw, the sink read as 50 Ω
+    path = tmp_path / "d.toml"
+    path.write_text(HEAD + """
+[[bus]]
+id = "i2c"
+protocol = "i2c"
+mode = "fast"
+supply = "3.3 V"
+pullup = "300 Ω"
+trace = { length = "5 cm", capacitance = "1 pF/cm" }
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "rtc-i2c" },
+]
+""", encoding="utf-8")
+    bus = check_design(load_design(path)).buses[0]
+    vdd, rp = 3.3, 300.0 * 0.99  # the default 1 % pull-up tolerance at its low end
+    r_u1 = 0.4 / 8e-3   # mcu-3v3: VOL 0.4 V at IOL 8 mA (the built-in class)
+    held = vdd - 8e-3 * rp
+    resistive = vdd * r_u1 / (rp + r_u1)
+    assert held > resistive
+    # derived: the pull-up's power at the sink's resistance, V (V - VL) / Rp
+    assert bus.figures["pullup_power"].value == pytest.approx(
+        vdd * (vdd - resistive) / rp, rel=1e-9)
+    assert bus.figures["v_ol"].value >= held - 1e-12  # the level: where it carries 8 mA

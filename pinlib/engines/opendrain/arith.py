@@ -24,7 +24,7 @@ def far_drivers(far, segs, signal: str):
             yield d, link, v_other, rp_other
 
 
-def low_levels(v, rp_lo, drivers, far, segs, signal: str, phys=pu) -> tuple[list, list]:
+def low_levels(v, rp_lo, drivers, far, segs, signal: str, phys=pu) -> tuple[list, list, list]:
     """The low level each driver makes on the line at the actual current (``phys``: the
     pull-up functions, or :mod:`pinlib.physics.pullup.unchecked` for inputs checked
     already).
@@ -36,8 +36,12 @@ def low_levels(v, rp_lo, drivers, far, segs, signal: str, phys=pu) -> tuple[list
         current through its sink) or, with its link, one across a translator. [V], [A]
     offset_levels : list
         ``(v_bus, i, driver)`` of a repeater side's static-offset low. [V], [A]
+    plain : list
+        Per entry of ``levels``, its level with the sink read as a resistance through
+        its datasheet point whatever the current (at or below the level it guarantees):
+        the most the pull-up can draw, for its power. [V]
     """
-    levels, offset_levels = [], []
+    levels, offset_levels, plain = [], [], []
     for d in drivers:
         if d.offset is not None:
             vb = np.broadcast_to(d.offset, np.broadcast_shapes(np.shape(d.offset), np.shape(v)))
@@ -58,11 +62,13 @@ def low_levels(v, rp_lo, drivers, far, segs, signal: str, phys=pu) -> tuple[list
                 v, rp_lo, v_th / g, 1.0 / g, 0.0, d.r_sink + d.r_series))
             g_far, v_far = g, v_th
         levels.append((_guaranteed(vb, i, d.i_ol, v, rp_lo, g_far, v_far), i, d, None))
+        plain.append(vb)
     for d, link, v_other, rp_other in far_drivers(far, segs, signal):
         _, vf, _ = pu.translator_low_levels(v_other, rp_other, v, rp_lo, link.r_on,
                                             d.r_sink + d.r_series)
         levels.append((np.asarray(vf, dtype=float), None, d, link))
-    return levels, offset_levels
+        plain.append(levels[-1][0])
+    return levels, offset_levels, plain
 
 
 def _guaranteed(vb, i, i_ol, v, rp_lo, g_far, v_far):

@@ -153,7 +153,8 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
         out.pick("rise-time-min", up, [ge(phys.rise_time(rp_lo, ln.cb_low, ln.rise_factor),
                                           tr_min)], warn, "s")
     # -- low levels
-    raw, offset_levels = low_levels(v, rp_lo, ln.drivers, far, ctx.segs, ln.signal, phys)
+    raw, offset_levels, plain = low_levels(v, rp_lo, ln.drivers, far, ctx.segs, ln.signal,
+                                           phys)
     levels = [(vb, i, d if link is None else None) for vb, i, d, link in raw]
     f["v_ol"] = None
     if levels:
@@ -183,8 +184,9 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
         rows = [(i, d) for _, i, d in levels + offset_levels if d is not None]
         if rows:
             _sink_check(ctx, out, up, rows).basis = [_index(ln.drivers, d) for _, d in rows]
-        f["pullup_power"] = _reduce(np.max, [_worst_max(v * (v - lv[0]) / rp_lo)
-                                             for lv in levels + offset_levels])
+        # the sink at its resistance even past its rating: the most the pull-up draws
+        f["pullup_power"] = _reduce(np.max, [_worst_max(v * (v - lv) / rp_lo) for lv in
+                                             plain + [o[0] for o in offset_levels]])
     # -- high level (voh, worked out above for the rise)
     f["v_oh"] = np.min(voh, axis=-1, keepdims=True)
     if ln.receivers:
