@@ -74,8 +74,9 @@ def test_the_memo_ends_with_its_scope_and_nested_scopes_share_it(monkeypatch):
         with memo.run_scope() as inner:
             assert inner is outer
             _edge()
+            held = len(outer)  # the unit edge, and the figures read off it
         _edge()
-        assert len(calls) == 1 and len(outer) == 1
+        assert len(calls) == 1 and len(outer) == held >= 1
     assert outer == {}
     with memo.run_scope():
         _edge()
