@@ -154,12 +154,7 @@ def march_blocked(net, v_src: np.ndarray, n_t: int, block: int = BLOCKS[0]) -> n
              + np.arange(block + 1)[None, :])
     frac = net.port_frac[long_, None]
     interp = bool(np.any(frac > 0.0))
-    src_cur = np.empty(n_all)
-    src_cur[:n_t] = net.g_source[0] * v_src[:, 0]
-    src_cur[n_t:] = src_cur[n_t - 1]
-    v_forced = np.empty(n_all)
-    v_forced[:n_t] = v_src[:, 0]
-    v_forced[n_t:] = v_forced[n_t - 1]
+    src_cur, v_forced = source_samples(net, v_src, n_t, n_all)
     x = np.zeros(phi.shape[1])
     n_v = n_nodes * block
     n_l = n_ports * block
@@ -191,3 +186,16 @@ def march_blocked(net, v_src: np.ndarray, n_t: int, block: int = BLOCKS[0]) -> n
         x[:n_nodes] = v[:, -1]
         x[n_nodes:c_hist] = y[n_v + n_l:]
     return volts[:, :n_t, None]
+
+
+def source_samples(net, v_src, n_t: int, n_all: int) -> tuple[np.ndarray, np.ndarray]:
+    """A single case's source over ``n_all`` samples, its last held past the record's
+    ``n_t``: the current it injects (its Norton current, ``g_source`` times its
+    voltage) and the voltage it forces (a source without resistance). [A], [V]"""
+    src_cur = np.empty(n_all)
+    src_cur[:n_t] = net.g_source[0] * v_src[:, 0]
+    src_cur[n_t:] = src_cur[n_t - 1]
+    v_forced = np.empty(n_all)
+    v_forced[:n_t] = v_src[:, 0]
+    v_forced[n_t:] = v_forced[n_t - 1]
+    return src_cur, v_forced

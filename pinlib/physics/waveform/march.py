@@ -49,7 +49,7 @@ import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, ValidityWarning
-from pinlib.physics.waveform.blockmarch import chosen_block, march_blocked
+from pinlib.physics.waveform.blockmarch import chosen_block, march_blocked, source_samples
 
 __all__: list[str] = []
 
@@ -453,12 +453,7 @@ def _march_single(net: Network, v_src: np.ndarray, n_t: int) -> np.ndarray:
     weight = net.incidence * (2.0 * net.port_g[:, 0])[None, :]           # (N, P)
     # each port at its own node, in node order: a node's launched wave is its voltage
     by_node = port_node.size == n_nodes and bool(np.all(port_node == np.arange(n_nodes)))
-    src_cur = np.empty(n_all)
-    src_cur[:n_t] = net.g_source[0] * v_src[:, 0]
-    src_cur[n_t:] = src_cur[n_t - 1]
-    v_forced = np.empty(n_all)
-    v_forced[:n_t] = v_src[:, 0]
-    v_forced[n_t:] = v_forced[n_t - 1]
+    src_cur, v_forced = source_samples(net, v_src, n_t, n_all)
     forced = bool(net.forced[0])
     blocks = np.empty((runs, n_nodes, block, 1))   # each run's product, in place
     state = np.zeros((n_nodes, block + 2))                               # v, i, I[...]
