@@ -50,8 +50,12 @@ def low_levels(v, rp_lo, drivers, far, segs, signal: str, phys=pu) -> tuple[list
         if not far:
             vb = np.asarray(phys.low_level(v, rp_lo, d.r_sink, d.r_series), dtype=float)
             i = np.asarray(phys.sink_current(v, rp_lo, d.r_sink, d.r_series), dtype=float)
-            g_far, v_far = 0.0, 0.0
+            levels.append((_guaranteed(vb, i, d.i_ol, v, rp_lo), i, d, None))
         else:
+            # across a pass transistor the sink's datasheet point stays a resistance:
+            # held to IOL, the level would rise to where the transistor stops conducting
+            # (its gate less its threshold), which the lossless R_on model does not
+            # know; sink-current fails beside a current past IOL
             g = 0
             for link, _, rp in far:
                 g = g + 1.0 / (rp + link.r_on)
@@ -60,8 +64,7 @@ def low_levels(v, rp_lo, drivers, far, segs, signal: str, phys=pu) -> tuple[list
                 v_th = v_th + vv / (rp + link.r_on)
             vb, _, i = (np.asarray(x, dtype=float) for x in pu.translator_low_levels(
                 v, rp_lo, v_th / g, 1.0 / g, 0.0, d.r_sink + d.r_series))
-            g_far, v_far = g, v_th
-        levels.append((_guaranteed(vb, i, d.i_ol, v, rp_lo, g_far, v_far), i, d, None))
+            levels.append((vb, i, d, None))
         plain.append(vb)
     for d, link, v_other, rp_other in far_drivers(far, segs, signal):
         _, vf, _ = pu.translator_low_levels(v_other, rp_other, v, rp_lo, link.r_on,
@@ -71,18 +74,16 @@ def low_levels(v, rp_lo, drivers, far, segs, signal: str, phys=pu) -> tuple[list
     return levels, offset_levels, plain
 
 
-def _guaranteed(vb, i, i_ol, v, rp_lo, g_far, v_far):
-    """The low level the sink guarantees: ``vb`` (its datasheet point read as a resistance)
-    where the current ``i`` stays within its ``i_ol``; beyond, the sink is held to that
-    constant current (:data:`pinlib.engines.opendrain.explain.SINK_MODEL`, as the fall
-    time takes it) and the line settles where the pull-ups (``rp_lo`` to ``v``, and
-    across a translator ``g_far`` [S] to ``v_far`` [A], their Norton current) carry
-    ``i_ol``. [V]"""
+def _guaranteed(vb, i, i_ol, v, rp_lo):
+    """The low level the sink guarantees on a segment without a pass transistor: ``vb``
+    (its datasheet point read as a resistance) where the current ``i`` stays within its
+    ``i_ol``; beyond, the sink is held to that constant current
+    (:data:`pinlib.engines.opendrain.explain.SINK_MODEL`, as the fall time takes it)
+    and the line settles where the pull-up ``rp_lo`` to ``v`` carries ``i_ol``. [V]"""
     over = i > i_ol
     if not np.any(over):
         return vb
-    held = (v / rp_lo + v_far - i_ol) / (1.0 / rp_lo + g_far)
-    return np.where(over, np.maximum(held, vb), vb)
+    return np.where(over, np.maximum(v - i_ol * rp_lo, vb), vb)
 
 
 #: What bounds a driver's fall time (the ``kind`` of :func:`fall_bounds`).

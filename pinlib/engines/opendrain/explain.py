@@ -182,7 +182,9 @@ FAR_BEYOND_CB = 10.0
 SINK_MODEL = ("I ≥ min(V·IOL/VOL, IOL): the datasheet point (VOL at IOL) read as a "
                "resistance VOL/IOL below VOL and as a constant current above it; the v-ol "
                "check and the fall-time bound both use it: where the pull-ups draw more than "
-               "IOL the line settles where they carry IOL, above VOL")
+               "IOL the line settles where they carry IOL, above VOL (across a pass "
+               "transistor the v-ol check keeps the resistance: the transistor's own limit "
+               "is not modelled)")
 
 
 _WORST = {"bus_capacitance": max, "pullup": min, "rp_min": max, "rp_max": min, "rise_time": max,
