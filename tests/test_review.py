@@ -1436,3 +1436,9 @@ def test_a_closed_pull_up_window_is_captioned_as_closed():
     md = review.render_markdown(design, check_design(design))
     assert "*Pull-up window: x SDA, segment high.* No pull-up fits at any Cb shown" in md
     assert "*Pull-up window: x SCL, segment high.* Allowed pull-ups (shaded)" in md
+    # and its subtitle gives no number where there is none ("Rp(min) inf Ω set by U3")
+    built = review.build_review(design, check_design(design))
+    (closed,) = [c for c in built.all_charts() if c.title == "Pull-up window: x SDA, "
+                 "segment high"]
+    assert closed.svg is not None and "inf" not in closed.svg
+    assert "sink cannot carry the far side" in closed.svg

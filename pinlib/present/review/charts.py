@@ -29,8 +29,12 @@ def _pullup_charts(bus, design, result: BusResult, keys, charts):
                 charts.setdefault(place, []).append(
                     ReviewChart(key, "pullup-window", title, "", None, err.message))
                 continue
-            sub = (f"tr ≤ {_f(d.tr_max, 's')}, rise = {d.rise_factor:.4g}·Rp·Cb; Rp(min) "
-                   f"{_f(d.rp_min, 'Ω')}" + (f" set by {d.weakest}" if d.weakest else ""))
+            if np.isfinite(d.rp_min):
+                rp_min = f"{_f(d.rp_min, 'Ω')}" + (f" set by {d.weakest}" if d.weakest else "")
+            else:  # no Rp(min) at all: the far side's pull-ups alone are too much
+                rp_min = (f"none: {d.weakest + chr(39) + 's' if d.weakest else 'the'} sink "
+                          "cannot carry the far side's pull-ups")
+            sub = f"tr ≤ {_f(d.tr_max, 's')}, rise = {d.rise_factor:.4g}·Rp·Cb; Rp(min) {rp_min}"
             sink, far = (("(IOL − I(far))", "; I(far) is the far side's pull-up current, "
                           "which the sink also carries through the translator") if d.shared
                          else ("IOL", ""))
