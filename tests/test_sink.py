@@ -108,6 +108,15 @@ def test_open_drain_reset_against_a_strong_pullup(tmp_path):
     _, (chk,) = _sink(_bus(tmp_path, devs, TRACE + ', pullup = "1 kΩ"', library=False))
     assert chk.value == pytest.approx(VDD / (990.0 + 300.0), rel=1e-9)
     assert chk.status == "fail" and "supervisor-od" in chk.source
+    # the receiver's low level: the sink guarantees 1 mA past its VOL, no more, so the
+    # line settles where the pull-up carries 1 mA (it read the 300 Ω point's 0.77 V;
+    # the I2C engine's model, docs/formats/result.md `v_ol`)
+    ln, _ = _sink(_bus(tmp_path, devs, TRACE + ', pullup = "1 kΩ"', library=False))
+    (low,) = [c for c in ln.checks if c.id == "level-low"]
+    # (less the pins' leakage through the pull-up, a few mV, on the high level it falls
+    # from)
+    assert low.value == pytest.approx(VDD - 1e-3 * 990.0, abs=0.01)
+    assert low.status == "fail"
     _, (ok,) = _sink(_bus(tmp_path, devs, TRACE + ', pullup = "10 kΩ"', library=False))
     assert ok.status == "pass"
 

@@ -3,6 +3,8 @@ levels and edge time."""
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from pinlib.core.labels import plural_s
@@ -204,7 +206,7 @@ def _driver_levels(d: Endpoint, c) -> tuple[float, str, float, str]:
     pull-up and sink on the net; a push-pull one's from its part, or rail to rail."""
     if d.pin.drive == "open-drain":
         src = f"{d.label}: pull-up and sink on the net"
-        return c.v_high, src, c.v_low, src
+        return c.v_high, src, _guaranteed_low(d, c), src
     v_oh = d.level("v_oh")
     v_ol = d.level("v_ol")
     oh_src = d.source("v_oh") if v_oh is not None else ""
@@ -214,6 +216,22 @@ def _driver_levels(d: Endpoint, c) -> tuple[float, str, float, str]:
     if v_ol is None:
         v_ol, ol_src = 0.0, f"{d.label}: rail-to-rail CMOS output assumed"
     return v_oh, oh_src, v_ol, ol_src
+
+
+def _guaranteed_low(d: Endpoint, c) -> float:
+    """An open-drain driver's low level as its part guarantees it: its datasheet point
+    (VOL at IOL) read as a resistance while the pull-up (``c.model.r_rise``) draws at
+    most IOL, and IOL alone beyond it, where the line settles at the level the pull-up
+    carries IOL from (the open-drain engine's model,
+    :data:`pinlib.engines.opendrain.explain.SINK_MODEL`).  The waveforms keep the
+    resistance (``c.v_low``), as a transient simulator's resistor does. [V]"""
+    i_ol, rp = d.pin.i_ol, c.model.r_rise
+    if i_ol is None or d.level("v_ol") is None or not (0.0 < rp < math.inf):
+        return c.v_low
+    i_ol = float(i_ol.at())
+    if (c.v_high - c.v_low) / rp <= i_ol:
+        return c.v_low
+    return max(c.v_low, c.v_high - i_ol * rp)
 
 
 def _level_checks(rx: Endpoint, d: Endpoint, c, v_il: float, v_ih: float,
