@@ -438,6 +438,36 @@ def test_a_sink_far_too_weak_for_any_load_gets_no_sizing_advice(tmp_path):
     _no_infinity(res)
 
 
+def test_a_sink_that_no_segment_could_suit_gets_no_sizing_advice(tmp_path):
+    # invented test input: a target sinking 20 µA; derived: Rp(min) = 2.9 V / 20 µA =
+    # 145 kΩ, under which only 2.39 pF rises in Fast-mode's 300 ns (UM10204 rev. 6 table
+    # 10): 8.4 times less than the bus (under the tenfold rule), but less than the
+    # target's own pin, so no buffer segment could be that light: the advice had named
+    # nine of them
+    from test_opendrain import HEAD, PARTS
+
+    from pinlib.engines import opendrain
+    from pinlib.model.design import load_design
+
+    lib = tmp_path / "lib"
+    lib.mkdir()
+    (lib / "weak.toml").write_text(
+        'format = "pinlib.part/1"\nid = "t-weak"\nextends = "t-target"\n'
+        'title = "Test target, 20 µA sink"\n'
+        'provenance = { basis = "estimate", source = "test data, invented" }\n'
+        '[pins.sda]\ni_ol = "20 µA"\n', encoding="utf-8")
+    path = tmp_path / "d.toml"
+    path.write_text(HEAD + one_bus(devices=[
+        '{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+        '{ ref = "U2", part = "t-weak" }']), encoding="utf-8")
+    d = load_design(path, library_folders=[PARTS, lib])
+    res = opendrain.evaluate_bus(d.buses[0], d)
+    chk = next(c for c in res.checks if c.id == "pullup-window" and c.subject == "SDA")
+    assert chk.status == "fail"
+    assert "segments" not in chk.fix and "bring Cb below" not in chk.fix
+    assert "less than U2's own pin" in chk.fix
+
+
 def test_no_pull_up_across_a_translator_is_said_not_given_as_infinity(tmp_path):
     # invented test input: tests/data/translator-cable.toml with its high side at 12 V:
     # the 1.8 V sensor's 2 mA sink cannot carry the 12 V side's pull-up at all, so

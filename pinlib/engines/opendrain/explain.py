@@ -123,13 +123,16 @@ def _no_fit_advice(lim: OpenDrainLimits, seg_in: SegmentInputs, ln: LineInputs) 
         return tips
     eff_lo = rp_min / (1 - tol)
     cb_lim = float(pu.cb_limit(lim.tr_max, rp_min, tol, ln.rise_factor))
-    if not ln.cb <= FAR_BEYOND_CB * cb_lim:
+    own = _own_pin(weakest)
+    if not ln.cb <= FAR_BEYOND_CB * cb_lim or cb_lim < own:
         # the sink, not the load, is what is wrong (a 3 nA rating allows 340 aF): cutting
         # the load thousands of times, or as many buffer segments, would read as advice
+        # (or less than the weakest sink's own pin: no segment can be that light)
+        less = (f"less than {weakest.tap.label}'s own pin ({_f(own, 'F')})" if cb_lim < own
+                else f"{_ratio(ln.cb, cb_lim)} times less than {_f(ln.cb, 'F')}")
         tips.append(f"at that Rp(min) only a Cb under {_f(cb_lim, 'F')} rises in time, "
-                    f"{_ratio(ln.cb, cb_lim)} times less than {_f(ln.cb, 'F')}: no shorter "
-                    "trace, buffer or active pull-up makes up for so weak a sink; check its "
-                    "i_ol, or use a stronger driver")
+                    f"{less}: no shorter trace, buffer or active pull-up makes up for so "
+                    "weak a sink; check its i_ol, or use a stronger driver")
         tips.extend(_sink_advice(v_max, ln, tol, weakest))
         return tips
     tips.append(f"bring Cb below {_f(cb_lim, 'F')} (now {_f(ln.cb, 'F')}: "
@@ -154,6 +157,13 @@ def _no_fit_advice(lim: OpenDrainLimits, seg_in: SegmentInputs, ln: LineInputs) 
     tips.append(f"an active (current-source) pull-up of at least {_f(i_cs, 'A')} "
                 f"(UM10204 rev. 6 §5.1){ok_cs}")
     return tips + _sink_advice(v_max, ln, tol, weakest)
+
+
+def _own_pin(weakest) -> float:
+    """The capacitance of the weakest sink's own pin (0 where it states none): no segment
+    of a split bus that holds it is lighter. [F]"""
+    c_in = getattr(getattr(getattr(weakest, "tap", None), "pin", None), "c_in", None)
+    return float(c_in.value) if c_in is not None else 0.0
 
 
 def _sink_advice(v_max: float, ln: LineInputs, tol: float, weakest) -> list[str]:

@@ -330,7 +330,8 @@ def _v_ol(w: Words, ln: LineInputs, far: list) -> None:
     _conditional_on_r_on(w, far, chk)
     if failing:
         _failed(chk, f"receivers {few_named(failing)} read the low level as high: a larger "
-                     "pull-up, a stronger sink, smaller series resistors, or a translator")
+                     "pull-up, a stronger sink, smaller series resistors"
+                     + ("" if far else ", or a translator"))
     w.grp.add(chk)
     _noise_margin(w, up, "low", "lowest VIL − low level", lim.v_nl_rel)
 
