@@ -47,14 +47,12 @@ from pinlib.core.records import (
     Convert,
     Involving,
     Record,
-    RecordError,
     Rule,
     WrittenAs,
     after,
     check,
     field,
 )
-from pinlib.library.typside import typ_problems
 from pinlib.library.values import (
     Sourced,
     StatedList,
@@ -473,15 +471,6 @@ class Part(Record):
         if v and set(v) != {"a", "b"}:
             raise ValueError(M.BRIDGE_BOTH_SIDES)
         return v
-
-    @after
-    def _typ_beside_its_limit(self):
-        # a typ beyond the limit it rides beside (12 pF max, 20 pF typ): one of them
-        # mistyped; refused at the typ's place, whatever wrote it (pinlib.library.typside)
-        issues = typ_problems(self)
-        if issues:
-            raise RecordError(issues)
-        return self
 
     def functions(self) -> set[str]:
         """Every pin function the part offers (on either side for a bridge)."""
