@@ -780,6 +780,16 @@ def _(env):
                   env)
 
 
+def test_the_faster_than_light_message_states_the_rounding_allowed():
+    # the message writes the allowance as text; the constant is what the loaders use
+    from pinlib.core.quantity import DELAY_MIN, LIGHT_DELAY, LIGHT_DELAY_ROUNDING
+
+    assert f"{LIGHT_DELAY_ROUNDING:.0%}".replace("%", " %") in M.DELAY_FASTER_THAN_LIGHT
+    # derived from c = 299 792 458 m/s (exact, SI Brochure, 9th edition, 2.3.1): 1/c
+    assert f"{LIGHT_DELAY * 1e9:.4f} ns/m" in M.DELAY_FASTER_THAN_LIGHT
+    assert DELAY_MIN == pytest.approx(LIGHT_DELAY * (1 - LIGHT_DELAY_ROUNDING), rel=1e-15)
+
+
 def _disagreeing(env):
     from pinlib.library.plausible import part_warnings
 

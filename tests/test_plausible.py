@@ -82,6 +82,24 @@ def test_impedance_alone_is_refused(team):
         load_library([team], env=False, strict=True)
 
 
+@pytest.mark.parametrize(("delay", "refused"), [
+    ("3.3 ns/m", False),  # an air line rounded: 1 % under 1/c = 3.3356 ns/m, accepted
+    ("3.2 ns/m", True),   # 4 % under: refused, saying why (not a bare range)
+])
+def test_a_written_delay_under_light_s_is_refused_past_a_rounded_figure(team, delay, refused):
+    # invented test part (the review's coax-air: 11 pF/m and 3.3 ns/m was refused with
+    # "outside the allowed range ... at least 3.34 ns/m")
+    _cable(team, "air", f'capacitance = "11 pF/m"\ndelay = "{delay}"')
+    lib = load_library([team], env=False)
+    assert ("air" not in lib.parts) == refused
+    if refused:
+        (problem,) = lib.problems
+        assert problem.field == "line.delay" and problem.value == delay
+        assert "shorter than light's in vacuum (1/c, 3.3356 ns/m)" in problem.problem
+        # derived from 1/c = 3.3356 ns/m less 2 % (pinlib.core.quantity.DELAY_MIN)
+        assert problem.expected == "at least 3.27 ns/m and at most 1 µs/m"
+
+
 def test_a_cable_by_impedance_and_delay_serves_a_design(team, tmp_path):
     _cable(team, "zd", 'delay = "5 ns/m"\nimpedance = "100 Ω"')
     design = tmp_path / "d.toml"

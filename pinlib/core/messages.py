@@ -178,8 +178,10 @@ SUPPLY_MAX_BELOW_MIN = "supply max {max} is below min {min}"
 SUPPLY_MIN_NOT_POSITIVE = "the supply min must be above 0 V"
 EDGE_TIME_NOT_POSITIVE = "an edge time of 0 s or less"
 BRIDGE_BOTH_SIDES = "a bridging part describes both sides, [sides.a] and [sides.b]"
+# the 2 % is pinlib.core.quantity.LIGHT_DELAY_ROUNDING (a test holds them equal)
 DELAY_FASTER_THAN_LIGHT = ("a delay per length shorter than light's in vacuum (1/c, "
-                           "3.3356 ns/m): no line carries a signal faster")
+                           "3.3356 ns/m) by more than a rounded figure's 2 %: no line "
+                           "carries a signal faster")
 CABLE_Z0_IMPOSSIBLE = ("a cable class's impedance of {z0} ({how}) is one no line has: "
                        "expected {low} to {high}")
 CABLE_NEEDS_TWO_OF_THREE = ("a cable class gives its capacitance per length, or two of "

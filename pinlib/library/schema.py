@@ -42,7 +42,7 @@ from typing import Annotated, Literal
 from pinlib.core import messages as M
 from pinlib.core.errors import LibraryError
 from pinlib.core.protocols import PIN_FUNCTIONS
-from pinlib.core.quantity import format_si
+from pinlib.core.quantity import DELAY_MIN, format_si
 from pinlib.core.records import (
     Convert,
     Involving,
@@ -106,11 +106,11 @@ Voltage = _q("V", -50.0, 50.0, signed=True)
 Resistance = _q("Ω", 0.0, 100e6)
 Time = _q("s", 0.0, 10.0)
 Frequency = _q("Hz", 0.0, 100e9)
-#: The delay of light in vacuum per metre, 1/c (c = 299,792,458 m/s, exact by the SI's
-#: definition of the metre): no line's delay per length is shorter.
-DELAY_MIN = 1.0 / 299_792_458.0
+#: The shortest delay per length (pinlib.core.quantity.DELAY_MIN: light's in vacuum, 1/c,
+#: less a rounded figure's 2 %); the design loader takes it from here.
 CapPerLength = _q("F/m", 0.0, 1e-6)
-DelayPerLength = _q("s/m", DELAY_MIN, 1e-6)
+DelayPerLength = Annotated[Sourced, Convert(sourced_parser(
+    "s/m", DELAY_MIN, 1e-6, low_problem=M.DELAY_FASTER_THAN_LIGHT))]
 Level = Annotated[Sourced, Convert(threshold_parser())]
 #: The lowest supply a part may state, as the lowest rail a design may set
 #: (pinlib.model.design.raw.SUPPLY_MIN takes it from here): no logic rail runs below
