@@ -184,6 +184,14 @@ DELAY_FASTER_THAN_LIGHT = ("a delay per length shorter than light's in vacuum (1
                            "carries a signal faster")
 CABLE_Z0_IMPOSSIBLE = ("a cable class's impedance of {z0} ({how}) is one no line has: "
                        "expected {low} to {high}")
+# after LINE_VALUES_DISAGREE, where all three are given and delay / capacitance is no line's
+CABLE_DISAGREE_Z0_IMPOSSIBLE = ("; and {how} is an impedance of {z0}, one no line has "
+                                "(expected {low} to {high})")
+# the 2 % is pinlib.core.quantity.LIGHT_DELAY_ROUNDING (a test holds them equal)
+DELAY_DERIVED_FASTER_THAN_LIGHT = ("impedance x capacitance = {z} x {c} gives a delay per "
+                                   "length of {delay}, shorter than light's in vacuum (1/c, "
+                                   "3.3356 ns/m) by more than 2 %: no line carries a signal "
+                                   "faster (the impedance or the capacitance mistyped?)")
 CABLE_NEEDS_TWO_OF_THREE = ("a cable class gives its capacitance per length, or two of "
                             "capacitance, delay and impedance (each above zero)")
 # values.py

@@ -18,7 +18,7 @@ from __future__ import annotations
 from pinlib.core import messages as M
 from pinlib.core.errors import LibraryError
 from pinlib.core.quantity import format_si
-from pinlib.library.schema import Part
+from pinlib.library.schema import LINE_AGREEMENT, Part
 from pinlib.library.typside import GIVEN_BY_CONTROLLER, TYP_SIDE, typ_beyond
 from pinlib.library.values import Sourced
 
@@ -55,10 +55,7 @@ RANGES: dict[tuple[str, str], tuple[float, float, str]] = {
     ("impedance", "line"): (20.0, 300.0, "Ω"),
 }
 
-#: Capacitance, delay and impedance of a cable class agree when C' Z0 is within this
-#: fraction of the delay (common practice, no source: catalogue values are rounded to a
-#: few percent).
-LINE_AGREEMENT = 0.05
+# LINE_AGREEMENT (pinlib.library.schema, where a refusal also weighs it) is named here too
 
 
 def _range_text(lo: float, hi: float, unit: str) -> str:

@@ -326,6 +326,13 @@ class Provenance(Record):
 LINE_Z0_MIN = 1.0
 LINE_Z0_MAX = 1000.0
 
+#: Capacitance, delay and impedance of a cable class agree when C' Z0 is within this
+#: fraction of the delay (common practice, no source: catalogue values are rounded to a
+#: few percent).  Beyond it they are a warning (pinlib.library.plausible), unless
+#: delay / capacitance is an impedance no line has: then the disagreement is the reason
+#: given with the refusal, as it points at the slip.
+LINE_AGREEMENT = 0.05
+
 
 def line_z0_problem(delay: float, capacitance: float) -> str | None:
     """The expected text when ``delay / capacitance`` (per length, SI) is no line's
@@ -381,18 +388,30 @@ class LinePerLength(Record):
 
     def _possible(self, given):
         """Refuse an impedance no line has (:data:`LINE_Z0_MIN` to :data:`LINE_Z0_MAX`):
-        the stated or derived one, and delay / capacitance where all three are given."""
+        the stated or derived one, and delay / capacitance where all three are given
+        (there, when they also disagree beyond :data:`LINE_AGREEMENT`, the disagreement
+        is said first: it points at the value mistyped); and a derived delay shorter
+        than light's."""
         d, c, z = self.delay, self.capacitance, self.impedance
         if d.value < DELAY_MIN:  # derived (impedance x capacitance): a given one is ranged
-            raise Involving(M.DELAY_FASTER_THAN_LIGHT, ("capacitance", "impedance"))
+            raise Involving(M.DELAY_DERIVED_FASTER_THAN_LIGHT.format(
+                delay=f"{d.value * 1e9:.3g} ns/m", z=z.text, c=c.text),
+                ("capacitance", "impedance"))
         for z0, how in ((z.value, "delay / capacitance" if z.derived else "as given"),
                         (d.value / c.value, "delay / capacitance")):
-            if not LINE_Z0_MIN <= z0 <= LINE_Z0_MAX:
-                raise Involving(M.CABLE_Z0_IMPOSSIBLE.format(
-                    z0=format_si(z0, "Ω"), how=how, low=format_si(LINE_Z0_MIN, "Ω"),
-                    high=format_si(LINE_Z0_MAX, "Ω")),
-                    tuple(f for f, x in (("capacitance", c), ("delay", d), ("impedance", z))
-                          if any(x is g for g in given)))
+            if LINE_Z0_MIN <= z0 <= LINE_Z0_MAX:
+                continue
+            bounds = {"z0": format_si(z0, "Ω"), "how": how,
+                      "low": format_si(LINE_Z0_MIN, "Ω"), "high": format_si(LINE_Z0_MAX, "Ω")}
+            fields = tuple(f for f, x in (("capacitance", c), ("delay", d), ("impedance", z))
+                           if any(x is g for g in given))
+            implied = z.value * c.value  # tpd = Z0 C' (lossless line)
+            off = implied / d.value - 1.0
+            if len(given) == 3 and abs(off) > LINE_AGREEMENT:
+                raise Involving(M.LINE_VALUES_DISAGREE.format(
+                    implied=f"{implied * 1e9:.3g} ns/m", delay=d.text, off=f"{off:+.0%}")
+                    + M.CABLE_DISAGREE_Z0_IMPOSSIBLE.format(**bounds), fields)
+            raise Involving(M.CABLE_Z0_IMPOSSIBLE.format(**bounds), fields)
         return self
 
 
