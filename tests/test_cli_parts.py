@@ -972,6 +972,39 @@ def test_check_lists_what_the_first_problems_of_a_part_hide(lib, capsys):
     assert "note:" not in out  # every check ran on the fields that read
 
 
+def test_check_adds_no_problem_that_taking_the_first_one_s_fields_out_made(lib, capsys):
+    # A cable class refused for values no line has was checked again without them, and
+    # then reported "a cable class gives its capacitance per length, or two of ..." as a
+    # problem of its own: the file has all three (coax-3) or two (coax-50).
+    _, team = lib
+    # invented test inputs: the delay typed per cm for per m (5 kΩ), and 50 Ω over
+    # 50 pF/m (2.5 ns/m, faster than light)
+    for pid, line in (("coax-3", 'capacitance = "100 pF/m"\nimpedance = "50 Ω"\n'
+                                 'delay = "5 ns/cm"'),
+                      ("coax-50", 'capacitance = "50 pF/m"\nimpedance = "50 Ω"')):
+        (team / f"{pid}.toml").write_text(
+            f'format = "pinlib.part/1"\nid = "{pid}"\ntitle = "coax"\ncategory = "cable"\n'
+            'provenance = { basis = "datasheet", source = "rev A" }\n\n[line]\n'
+            f"{line}\n", encoding="utf-8")
+    code, out, _ = run(capsys, "parts", "check", "team")
+    text = " ".join(out.split())
+    assert code == 1
+    assert M.CABLE_NEEDS_TWO_OF_THREE not in text, out
+    found = [x.split("':")[0] + "'" for x in out.splitlines() if x.startswith("team/")]
+    assert found == ["team/coax-3.toml:8, field 'line.capacitance'",
+                     "team/coax-50.toml:8, field 'line.capacitance'"], out
+    # all three given and disagreeing: the disagreement first, then why it is refused.
+    # derived from tpd = Z0 C' = 50 Ω x 100 pF/m = 5 ns/m against 500 ns/m (-99 %), and
+    # Z0 = tpd / C' = 500 ns/m / 100 pF/m = 5 kΩ
+    assert ("capacitance, delay and impedance disagree: impedance x capacitance gives "
+            "5 ns/m against the delay 5 ns/cm (-99%); and delay / capacitance is an "
+            "impedance of 5 kΩ, one no line has") in text, out
+    # no delay written: the one derived is named as such.  derived from tpd = Z0 C' =
+    # 50 Ω x 50 pF/m = 2.5 ns/m
+    assert ("impedance x capacitance = 50 Ω x 50 pF/m gives a delay per length of "
+            "2.5 ns/m, shorter than light's in vacuum") in text, out
+
+
 def test_check_says_when_a_part_s_later_checks_cannot_run(lib, capsys):
     # a field every part needs is missing: the checks of the part as a whole wait for it
     _, team = lib

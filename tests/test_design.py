@@ -287,8 +287,15 @@ BAD.update({
         SPI + 'lines.cs = { length = "4 cm", capacitance = "0.4 pF/cm", '
               'delay = "20 ps/cm" }\n',
         "bus[0].lines.cs.delay", 21,
-        ["shorter than light's in vacuum (1/c, 3.3356 ns/m)", "got '20 ps/cm'",
-         "at least 33.4 ps/cm"]),
+        ["shorter than light's in vacuum (1/c, 3.3356 ns/m) by more than a rounded "
+         "figure's 2 %", "got '20 ps/cm'",
+         # derived from 1/c = 33.356 ps/cm less 2 % (pinlib.core.quantity.DELAY_MIN)
+         "at least 32.7 ps/cm"]),
+    "faster-than-light-beyond-rounding": (  # invented test input: 32 ps/cm, 4 % under 1/c
+        SPI + 'lines.cs = { length = "4 cm", capacitance = "0.11 pF/cm", '
+              'delay = "32 ps/cm" }\n',
+        "bus[0].lines.cs.delay", 21,
+        ["shorter than light's in vacuum", "got '32 ps/cm'"]),
     "impossible-impedance-low-in-route": (  # invented test input: 0.5 Ω
         SPI.replace(_SCLK, 'lines.sclk = { route = [\n  { from = "U1", to = "U2", '
                            'length = "5 cm", capacitance = "120 pF/cm", delay = "6 ns/m" },\n]}'),
@@ -375,6 +382,20 @@ def test_a_missing_title_or_format_is_named_at_the_top_of_the_file(tmp_path, cap
     assert written in err.message
     assert main(["check", str(path)]) == 2
     assert f"{path}:1, field '{key}'" in capsys.readouterr().err
+
+
+def test_an_air_line_written_with_a_rounded_delay_is_taken_and_evaluated(tmp_path):
+    # invented test design: an air-spaced line, 33 ps/cm (1/c = 33.356 ps/cm rounded to
+    # two digits, 1 % under it) was refused as faster than light
+    from pinlib.engines.dispatch import check_design
+
+    path = write(tmp_path, SPI + 'lines.cs = { length = "4 cm", capacitance = "0.11 pF/cm", '
+                                 'delay = "33 ps/cm" }\n')
+    design = load_design(path)
+    (section,) = design.bus("spi0").lines["cs"].sections
+    # published: SI Brochure, 9th edition, table 7: p = 1e-12, c = 1e-2
+    assert section.delay == pytest.approx(33e-12 / 1e-2, rel=1e-12)
+    assert check_design(design).buses  # the line engine takes it too
 
 
 def test_a_capacitance_of_zero_without_a_delay_is_still_taken(tmp_path):

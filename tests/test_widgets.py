@@ -828,6 +828,27 @@ def test_recorder_new_part_and_value(tmp_path):
     assert c_in.typ == pytest.approx(9e-12, rel=1e-12)
 
 
+def test_recorder_writes_a_typ_beyond_its_limit_and_shows_the_warning(tmp_path):
+    """A typ on the wrong side of its limit (a datasheet's typ at other conditions, or a
+    slip) is written, and the panel says so: it was refused, then written silently."""
+    team = tmp_path / "team"
+    r = PartRecorder(team)
+    r.set(id="ulv-acme", extends="eeprom-i2c", new_source="Acme rev A (invented)")
+    path = r.create()
+    # invented values: a typ of 6 pF beside a maximum of 5 pF
+    r.set(part="ulv-acme", field="sda.c_in", value="5 pF", typ="6 pF", basis="datasheet",
+          source="rev A, table 2 (invented)")
+    assert r.record() == path and r.errors == {}
+    assert 'typ = "6 pF"' in path.read_text(encoding="utf-8")
+    assert [w.field for w in r.warnings] == ["pins.sda.c_in.typ"]
+    assert "warning:" in r.message.value
+    assert "the typical value lies beyond the limit" in r.message.value
+    # a value on the right side leaves no warning behind
+    r.set(typ="4 pF")
+    assert r.record() == path and r.warnings == []
+    assert "warning:" not in r.message.value
+
+
 def test_recorder_records_next_into_the_part_just_created(tmp_path):
     """Creating a part turns to the record form: its Team part is the new part, not the
     one chosen before (a value recorded next would land in another part's file)."""

@@ -178,10 +178,20 @@ SUPPLY_MAX_BELOW_MIN = "supply max {max} is below min {min}"
 SUPPLY_MIN_NOT_POSITIVE = "the supply min must be above 0 V"
 EDGE_TIME_NOT_POSITIVE = "an edge time of 0 s or less"
 BRIDGE_BOTH_SIDES = "a bridging part describes both sides, [sides.a] and [sides.b]"
+# the 2 % is pinlib.core.quantity.LIGHT_DELAY_ROUNDING (a test holds them equal)
 DELAY_FASTER_THAN_LIGHT = ("a delay per length shorter than light's in vacuum (1/c, "
-                           "3.3356 ns/m): no line carries a signal faster")
+                           "3.3356 ns/m) by more than a rounded figure's 2 %: no line "
+                           "carries a signal faster")
 CABLE_Z0_IMPOSSIBLE = ("a cable class's impedance of {z0} ({how}) is one no line has: "
                        "expected {low} to {high}")
+# after LINE_VALUES_DISAGREE, where all three are given and delay / capacitance is no line's
+CABLE_DISAGREE_Z0_IMPOSSIBLE = ("; and {how} is an impedance of {z0}, one no line has "
+                                "(expected {low} to {high})")
+# the 2 % is pinlib.core.quantity.LIGHT_DELAY_ROUNDING (a test holds them equal)
+DELAY_DERIVED_FASTER_THAN_LIGHT = ("impedance x capacitance = {z} x {c} gives a delay per "
+                                   "length of {delay}, shorter than light's in vacuum (1/c, "
+                                   "3.3356 ns/m) by more than 2 %: no line carries a signal "
+                                   "faster (the impedance or the capacitance mistyped?)")
 CABLE_NEEDS_TWO_OF_THREE = ("a cable class gives its capacitance per length, or two of "
                             "capacitance, delay and impedance (each above zero)")
 # values.py
@@ -193,7 +203,7 @@ SOURCE_NOT_TEXT = "a source must be text"
 LEVEL_RANGE = "a multiple of VDD within ±2 plus an offset within {lo} V to {hi} V"
 # plausible.py (warnings: the part still loads)
 IMPLAUSIBLE_VALUE = "an implausible value for this field"
-# typside.py (refusals: the part does not load)
+# typside.py, by plausible.py (warnings: the part still loads)
 TYP_BEYOND_LIMIT = "the typical value lies beyond the limit beside it, {limit}"
 TYP_SIDE_RULE = ("a typ {rel} the value, which for {field} is the {side} (one of "
                  "them mistyped, or the two swapped?)")

@@ -32,6 +32,9 @@ from pinlib.core.errors import UnitError
 from pinlib.core.valueclass import value_class
 
 __all__ = [
+    "LIGHT_DELAY",
+    "LIGHT_DELAY_ROUNDING",
+    "DELAY_MIN",
     "UNITS",
     "parse",
     "parse_ratio",
@@ -42,6 +45,18 @@ __all__ = [
     "range_text",
     "unit_name",
 ]
+
+#: The delay of light in vacuum per metre, 1/c (c = 299,792,458 m/s, exact by the SI's
+#: definition of the metre): no line's delay per length is shorter. [s/m]
+LIGHT_DELAY = 1.0 / 299_792_458.0
+#: How far under :data:`LIGHT_DELAY` a delay per length may be written: an air-dielectric
+#: line's figure rounded to two digits (3.3 ns/m, 33 ps/cm) is 1 % under 1/c, and an
+#: engineer writes it so; 2 % allows that rounding and refuses a real slip (common
+#: practice, no source).
+LIGHT_DELAY_ROUNDING = 0.02
+#: The shortest delay per length a part or design file may give, 1/c less the rounding
+#: allowance (about 3.269 ns/m). [s/m]
+DELAY_MIN = LIGHT_DELAY * (1.0 - LIGHT_DELAY_ROUNDING)
 
 # Expected unit -> (name used in messages, example).
 UNITS: dict[str, tuple[str, str]] = {

@@ -5,8 +5,10 @@ fields (``v_il`` above ``v_ih``, a fast corner on an open-drain pin) and of the 
 whole run only on a table whose fields all read.  ``pinlib parts check`` promises every
 problem of a file in one run, so for a part that does not load it checks again a copy
 of the merged table without the fields already found wrong, round after round, and
-lists what the later stages find in the fields that did read.  Where a later stage
-cannot run without a field that was taken out (a field every part needs), it says so.
+lists what the later stages find in the fields that did read.  A later problem that the
+taking out made (a field taken now missing, a check that weighs one) is not reported:
+the file does not have it.  Where a later stage cannot run without a field that was
+taken out (a field every part needs), it says so.
 """
 
 from __future__ import annotations
@@ -55,6 +57,16 @@ def _under(loc: tuple, places) -> bool:
     return any(loc[:len(p)] == p for p in places)
 
 
+def _made_by_taking(issue, taken) -> bool:
+    """Whether ``issue`` may be the work of the places taken out rather than of the file:
+    one at or under a place taken (that field now missing), or a check that weighs a
+    field taken out (a cable class's two of capacitance, delay and impedance, once the
+    values a first problem named are gone)."""
+    if _under(issue.loc, taken):
+        return True
+    return any(_under(tuple(loc), taken) for loc in issue.related or ())
+
+
 def further_problems(pid: str, files: dict) -> tuple[list[PinlibError], bool]:
     """The problems of part ``pid`` beyond those it was refused with, and whether some
     checks still could not run (True: a field they need is one of the problems)."""
@@ -79,7 +91,7 @@ def further_problems(pid: str, files: dict) -> tuple[list[PinlibError], bool]:
         except loader._Many as many:
             errors = many.errors  # one error per issue, in the same order
         new = [(i, e) for i, e in zip(issues, errors, strict=True)
-               if (i.loc, i.problem) not in seen and not _under(i.loc, taken)]
+               if (i.loc, i.problem) not in seen and not _made_by_taking(i, taken)]
         if not new:
             return found, True  # the same problems again: a later stage needs them
         for issue, err in new:

@@ -2,7 +2,8 @@
 
 The schema refuses what cannot be a value at all (a negative capacitance, a lost unit
 prefix).  This module lists what is possible but implausible for the field and the kind
-of pin, by the ranges of :data:`RANGES`, and the cable classes whose capacitance, delay
+of pin, by the ranges of :data:`RANGES`, a typical value on the wrong side of the limit
+it rides beside (:mod:`pinlib.library.typside`), and the cable classes whose capacitance, delay
 and impedance disagree.  ``pinlib parts check`` lists them as problems, ``pinlib parts
 record`` warns when it writes one, and ``pinlib check`` warns about the parts a design
 places.
@@ -17,12 +18,8 @@ from __future__ import annotations
 from pinlib.core import messages as M
 from pinlib.core.errors import LibraryError
 from pinlib.core.quantity import format_si
-from pinlib.library.schema import Part
-from pinlib.library.typside import (  # noqa: F401 - its names, as before
-    GIVEN_BY_CONTROLLER,
-    TYP_SIDE,
-    typ_beyond,
-)
+from pinlib.library.schema import LINE_AGREEMENT, Part
+from pinlib.library.typside import GIVEN_BY_CONTROLLER, TYP_SIDE, typ_beyond
 from pinlib.library.values import Sourced
 
 __all__ = ["RANGES", "LINE_AGREEMENT", "TYP_SIDE", "GIVEN_BY_CONTROLLER", "implausible",
@@ -58,10 +55,7 @@ RANGES: dict[tuple[str, str], tuple[float, float, str]] = {
     ("impedance", "line"): (20.0, 300.0, "Ω"),
 }
 
-#: Capacitance, delay and impedance of a cable class agree when C' Z0 is within this
-#: fraction of the delay (common practice, no source: catalogue values are rounded to a
-#: few percent).
-LINE_AGREEMENT = 0.05
+# LINE_AGREEMENT (pinlib.library.schema, where a refusal also weighs it) is named here too
 
 
 def _range_text(lo: float, hi: float, unit: str) -> str:
@@ -149,6 +143,15 @@ def part_warnings(part: Part, lib=None, *, own_only: bool = False) -> list[Libra
     def _add(path, value, field, drive, ends=()):
         if own_only and value.origin not in (None, part.id):
             return
+        rule = typ_beyond(value, field, ends, part.category)
+        if rule:
+            # the typical value is what is named and quoted, the limit beside it told
+            typ = value.typ
+            out.append(LibraryError(M.TYP_BEYOND_LIMIT.format(limit=value.text),
+                                    field=".".join(map(str, path + ("typ",))),
+                                    value=getattr(typ, "text", "")
+                                    or format_si(float(typ), value.unit),
+                                    expected=rule, **_where(lib, part.id, value, path)))
         rng = implausible(value, field, drive, ends)
         if rng:
             out.append(LibraryError(M.IMPLAUSIBLE_VALUE, field=".".join(map(str, path)),

@@ -42,19 +42,17 @@ from typing import Annotated, Literal
 from pinlib.core import messages as M
 from pinlib.core.errors import LibraryError
 from pinlib.core.protocols import PIN_FUNCTIONS
-from pinlib.core.quantity import format_si
+from pinlib.core.quantity import DELAY_MIN, format_si
 from pinlib.core.records import (
     Convert,
     Involving,
     Record,
-    RecordError,
     Rule,
     WrittenAs,
     after,
     check,
     field,
 )
-from pinlib.library.typside import typ_problems
 from pinlib.library.values import (
     Sourced,
     StatedList,
@@ -108,11 +106,11 @@ Voltage = _q("V", -50.0, 50.0, signed=True)
 Resistance = _q("Ω", 0.0, 100e6)
 Time = _q("s", 0.0, 10.0)
 Frequency = _q("Hz", 0.0, 100e9)
-#: The delay of light in vacuum per metre, 1/c (c = 299,792,458 m/s, exact by the SI's
-#: definition of the metre): no line's delay per length is shorter.
-DELAY_MIN = 1.0 / 299_792_458.0
+#: The shortest delay per length (pinlib.core.quantity.DELAY_MIN: light's in vacuum, 1/c,
+#: less a rounded figure's 2 %); the design loader takes it from here.
 CapPerLength = _q("F/m", 0.0, 1e-6)
-DelayPerLength = _q("s/m", DELAY_MIN, 1e-6)
+DelayPerLength = Annotated[Sourced, Convert(sourced_parser(
+    "s/m", DELAY_MIN, 1e-6, low_problem=M.DELAY_FASTER_THAN_LIGHT))]
 Level = Annotated[Sourced, Convert(threshold_parser())]
 #: The lowest supply a part may state, as the lowest rail a design may set
 #: (pinlib.model.design.raw.SUPPLY_MIN takes it from here): no logic rail runs below
@@ -328,6 +326,13 @@ class Provenance(Record):
 LINE_Z0_MIN = 1.0
 LINE_Z0_MAX = 1000.0
 
+#: Capacitance, delay and impedance of a cable class agree when C' Z0 is within this
+#: fraction of the delay (common practice, no source: catalogue values are rounded to a
+#: few percent).  Beyond it they are a warning (pinlib.library.plausible), unless
+#: delay / capacitance is an impedance no line has: then the disagreement is the reason
+#: given with the refusal, as it points at the slip.
+LINE_AGREEMENT = 0.05
+
 
 def line_z0_problem(delay: float, capacitance: float) -> str | None:
     """The expected text when ``delay / capacitance`` (per length, SI) is no line's
@@ -383,18 +388,30 @@ class LinePerLength(Record):
 
     def _possible(self, given):
         """Refuse an impedance no line has (:data:`LINE_Z0_MIN` to :data:`LINE_Z0_MAX`):
-        the stated or derived one, and delay / capacitance where all three are given."""
+        the stated or derived one, and delay / capacitance where all three are given
+        (there, when they also disagree beyond :data:`LINE_AGREEMENT`, the disagreement
+        is said first: it points at the value mistyped); and a derived delay shorter
+        than light's."""
         d, c, z = self.delay, self.capacitance, self.impedance
         if d.value < DELAY_MIN:  # derived (impedance x capacitance): a given one is ranged
-            raise Involving(M.DELAY_FASTER_THAN_LIGHT, ("capacitance", "impedance"))
+            raise Involving(M.DELAY_DERIVED_FASTER_THAN_LIGHT.format(
+                delay=f"{d.value * 1e9:.3g} ns/m", z=z.text, c=c.text),
+                ("capacitance", "impedance"))
         for z0, how in ((z.value, "delay / capacitance" if z.derived else "as given"),
                         (d.value / c.value, "delay / capacitance")):
-            if not LINE_Z0_MIN <= z0 <= LINE_Z0_MAX:
-                raise Involving(M.CABLE_Z0_IMPOSSIBLE.format(
-                    z0=format_si(z0, "Ω"), how=how, low=format_si(LINE_Z0_MIN, "Ω"),
-                    high=format_si(LINE_Z0_MAX, "Ω")),
-                    tuple(f for f, x in (("capacitance", c), ("delay", d), ("impedance", z))
-                          if any(x is g for g in given)))
+            if LINE_Z0_MIN <= z0 <= LINE_Z0_MAX:
+                continue
+            bounds = {"z0": format_si(z0, "Ω"), "how": how,
+                      "low": format_si(LINE_Z0_MIN, "Ω"), "high": format_si(LINE_Z0_MAX, "Ω")}
+            fields = tuple(f for f, x in (("capacitance", c), ("delay", d), ("impedance", z))
+                           if any(x is g for g in given))
+            implied = z.value * c.value  # tpd = Z0 C' (lossless line)
+            off = implied / d.value - 1.0
+            if len(given) == 3 and abs(off) > LINE_AGREEMENT:
+                raise Involving(M.LINE_VALUES_DISAGREE.format(
+                    implied=f"{implied * 1e9:.3g} ns/m", delay=d.text, off=f"{off:+.0%}")
+                    + M.CABLE_DISAGREE_Z0_IMPOSSIBLE.format(**bounds), fields)
+            raise Involving(M.CABLE_Z0_IMPOSSIBLE.format(**bounds), fields)
         return self
 
 
@@ -473,15 +490,6 @@ class Part(Record):
         if v and set(v) != {"a", "b"}:
             raise ValueError(M.BRIDGE_BOTH_SIDES)
         return v
-
-    @after
-    def _typ_beside_its_limit(self):
-        # a typ beyond the limit it rides beside (12 pF max, 20 pF typ): one of them
-        # mistyped; refused at the typ's place, whatever wrote it (pinlib.library.typside)
-        issues = typ_problems(self)
-        if issues:
-            raise RecordError(issues)
-        return self
 
     def functions(self) -> set[str]:
         """Every pin function the part offers (on either side for a bridge)."""

@@ -1,20 +1,19 @@
-"""A typical value on the wrong side of the limit it rides beside: refused.
+"""A typical value on the wrong side of the limit it rides beside: a warning.
 
 ``c_in = { value = "12 pF", typ = "20 pF" }`` states a maximum of 12 pF and a typical
-20 pF: one of the two is mistyped (or the two swapped).  The part is refused at the typ's
-file, line and field whatever path wrote it (a file, ``pinlib parts record``, the
-recording panel), by :func:`typ_problems`, a check of the part's whole record (it needs
-the part's category and supply).  The sides are common practice, no source.
+20 pF: one of the two may be mistyped (or the two swapped), or the datasheet gives a typ
+measured under other conditions than the tabulated limit.  pinlib never computes with a
+typ, so the part still loads; :func:`pinlib.library.plausible.part_warnings` names the
+typ's file, line and field (``pinlib parts check`` lists it, ``pinlib parts record`` and
+the recording panel warn when they write one).  The sides are common practice, no source.
 """
 
 from __future__ import annotations
 
 from pinlib.core import messages as M
-from pinlib.core.quantity import format_si
-from pinlib.core.records import Issue
 from pinlib.library.values import Sourced
 
-__all__ = ["GIVEN_BY_CONTROLLER", "TYP_SIDE", "typ_beyond", "typ_problems"]
+__all__ = ["GIVEN_BY_CONTROLLER", "TYP_SIDE", "typ_beyond"]
 
 
 #: The direction each stored limit guards (common practice, no source; the glossary of
@@ -88,38 +87,3 @@ def typ_beyond(value: Sourced, field: str, supplies: tuple[float, ...] = (),
                                           rel="at most" if side == "max" else "at least")
     return None
 
-
-def typ_problems(part) -> list[Issue]:
-    """Every typ of ``part`` (a :class:`pinlib.library.schema.Part` as validated) on the
-    wrong side of its limit, as record issues at the typ's place
-    (``pins.sda.c_in.typ``)."""
-
-    out: list[Issue] = []
-
-    def add(path, value, field, ends=()):
-        if not isinstance(value, Sourced):
-            return
-        rule = typ_beyond(value, field, ends, part.category)
-        if rule:
-            # the typical value is what is named and quoted, the limit beside it told
-            typ = value.typ
-            out.append(Issue(path + ("typ",), "value",
-                             M.TYP_BEYOND_LIMIT.format(limit=value.text),
-                             getattr(typ, "text", "") or format_si(float(typ), value.unit),
-                             rule))
-
-    def pins(prefix, table, supply):
-        ends = () if supply is None else (float(supply.min.value), float(supply.max.value))
-        for name, pin in table.items():
-            for field in type(pin).fields():
-                add(prefix + (name, field), getattr(pin, field), field, ends)
-
-    pins(("pins",), part.pins, part.supply)
-    for side_name, side in part.sides.items():
-        pins(("sides", side_name, "pins"), side.pins, part.supply_for(side_name))
-        add(("sides", side_name, "low_offset"), side.low_offset, "low_offset")
-    if part.bridge is not None:
-        add(("bridge", "v_gs_th"), part.bridge.v_gs_th, "v_gs_th")
-    for field in type(part.timing).fields():
-        add(("timing", field), getattr(part.timing, field), field)
-    return out

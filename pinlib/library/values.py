@@ -224,13 +224,15 @@ def _split_table(raw, field):
 
 
 def sourced_parser(unit: str, lo: float | None = None, hi: float | None = None,
-                   *, signed: bool = False):
+                   *, signed: bool = False, low_problem: str | None = None):
     """A record converter (:class:`pinlib.core.records.Convert`): plain value or provenance
     table -> :class:`Sourced`.
 
     ``lo``/``hi`` are the field's allowed range in SI (a bare ``"4k7"`` for a
     capacitance must not pass as 4.7 kF); values outside them are refused with the range
-    in the message, per-length ranges per metre as the format's table states them.
+    in the message, per-length ranges per metre as the format's table states them;
+    ``low_problem``, when given, says why a positive value below ``lo`` is refused (a
+    delay per length faster than light) instead of the bare range.
     """
 
     def check(x, field, text):
@@ -241,7 +243,9 @@ def sourced_parser(unit: str, lo: float | None = None, hi: float | None = None,
         if (lo is not None and x < lo) or (hi is not None and x > hi):
             # the range as the format's table states it (docs/formats/part.md): per
             # metre for a cable's per-length values
-            raise UnitError(M.OUTSIDE_RANGE, field=field, value=str(text),
+            low = lo is not None and x < lo
+            raise UnitError(low_problem if low and low_problem else M.OUTSIDE_RANGE,
+                            field=field, value=str(text),
                             expected=range_text(lo, hi, unit, per="m"))
         return x
 

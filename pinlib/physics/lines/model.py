@@ -10,6 +10,7 @@ import numpy as np
 
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
+from pinlib.core.quantity import DELAY_MIN
 from pinlib.physics import guards
 
 __all__ = ["C0", "ETA0", "LineModel", "from_per_length"]
@@ -142,12 +143,14 @@ def from_per_length(c, tpd) -> LineModel:
     tpd = _as_float_array(tpd, "tpd")
     _require(c, c > 0, "c", "a capacitance per length > 0 [F/m]")
     _require(tpd, tpd > 0, "tpd", "a delay per length > 0 [s/m]")
-    # a relative tolerance of 1e-9 lets a free-space value rounded in the last digit pass
+    # the part and design formats accept a figure rounded to within 2 % under 1/c (an
+    # air line's 3.3 ns/m: pinlib.core.quantity.DELAY_MIN); 1e-9 more for float rounding
     _require(
         tpd,
-        tpd * C0 >= 1.0 - 1e-9,
+        tpd >= DELAY_MIN * (1.0 - 1e-9),
         "tpd",
-        f"a delay per length >= 1/c0 = {1.0 / C0:.6g} s/m (no faster than light)",
+        f"a delay per length >= {DELAY_MIN:.6g} s/m (1/c0 = {1.0 / C0:.6g} s/m less a "
+        f"rounded figure's 2 %: no faster than light)",
     )
     c, tpd = np.broadcast_arrays(c, tpd)
     z0 = tpd / c

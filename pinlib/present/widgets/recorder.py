@@ -22,7 +22,15 @@ from pinlib.present.widgets.common import (
     set_options,
     style,
 )
-from pinlib.present.widgets.markup import block, caution_html, e, error_html, inline_error, note
+from pinlib.present.widgets.markup import (
+    block,
+    caution_html,
+    e,
+    error_html,
+    inline_error,
+    note,
+    notice,
+)
 
 #: Width of a form field in the recorder (its error goes beside it). [px]
 FORM_WIDTH = 400
@@ -59,6 +67,9 @@ class PartRecorder(_Panel):
         ``form``).
     written : Path or None
         The file the last successful action wrote.
+    warnings : list of LibraryError
+        What the last value recorded was warned of (written all the same): a typ beyond
+        its limit, an implausible value; shown under the message.
     """
 
     _NEW = ("id", "extends", "title", "new_basis", "new_source")
@@ -76,6 +87,7 @@ class PartRecorder(_Panel):
         self.library = self._reload()
         self.errors: dict[str, PinlibError] = {}
         self.written: Path | None = None
+        self.warnings: list[LibraryError] = []
 
         def s():  # each control its own style and layout
             return {"style": style(), "layout": field_layout(width=f"{FORM_WIDTH}px",
@@ -273,8 +285,33 @@ class PartRecorder(_Panel):
         except PinlibError as err:
             self._show({self._place(err): err})
             return None
-        return self._done(path, f"recorded {self.field.value.strip()} = "
+        done = self._done(path, f"recorded {self.field.value.strip()} = "
                                 f"{self.value.value.strip()} in", path)
+        self._warn_recorded(self.part.value, self.field.value.strip())
+        return done
+
+    def _warn_recorded(self, pid: str, field: str) -> None:
+        """Show, under what was written, each warning about the value just recorded (a
+        typ beyond its limit, an implausible value, a cable class that disagrees), as
+        ``pinlib parts record`` prints them: written, not refused."""
+        from pinlib.library.plausible import part_warnings
+        from pinlib.library.record import resolve_field
+
+        self.warnings = []
+        try:
+            keys, _ = resolve_field(self.library, pid, field)
+            part = self.library.get(pid)
+        except PinlibError:
+            return
+        path = ".".join(keys)
+
+        def about(w) -> bool:
+            f = w.field or ""
+            return f == path or f.startswith(path + ".") or (
+                bool(f) and path.startswith(f + "."))
+
+        self.warnings = [w for w in part_warnings(part, self.library) if about(w)]
+        self.message.value += "".join(notice(f"warning: {e(w.message)}") for w in self.warnings)
 
     @staticmethod
     def _place(err: PinlibError) -> str:
