@@ -406,11 +406,9 @@ def test_a_load_far_beyond_the_mode_gets_no_sizing_advice(tmp_path):
     assert "segments" in chk.fix
 
 
-def test_a_sink_far_too_weak_for_any_load_gets_no_sizing_advice(tmp_path):
-    # invented test input: a target sinking 3 nA at 0.4 V (a rating typed in nA for mA);
-    # derived: Rp(min) = (3.3 V − 0.4 V) / 3 nA = 967 MΩ, so only a Cb of femtofarads
-    # rises within Fast-mode's 300 ns (UM10204 rev. 6 table 10); the advice had named a
-    # buffer splitting the bus into hundreds of thousands of segments
+def _weak_sink(tmp_path, i_ol: str):
+    """The SDA pull-up-window check and the result of a bus whose target (the test parts'
+    t-target) sinks only ``i_ol`` at 0.4 V (invented test input)."""
     from test_opendrain import HEAD, PARTS
 
     from pinlib.engines import opendrain
@@ -420,9 +418,9 @@ def test_a_sink_far_too_weak_for_any_load_gets_no_sizing_advice(tmp_path):
     lib.mkdir()
     (lib / "weak.toml").write_text(
         'format = "pinlib.part/1"\nid = "t-weak"\nextends = "t-target"\n'
-        'title = "Test target, 3 nA sink"\n'
+        f'title = "Test target, {i_ol} sink"\n'
         'provenance = { basis = "estimate", source = "test data, invented" }\n'
-        '[pins.sda]\ni_ol = "3 nA"\n', encoding="utf-8")
+        f'[pins.sda]\ni_ol = "{i_ol}"\n', encoding="utf-8")
     path = tmp_path / "d.toml"
     path.write_text(HEAD + one_bus(devices=[
         '{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
@@ -432,6 +430,15 @@ def test_a_sink_far_too_weak_for_any_load_gets_no_sizing_advice(tmp_path):
     chk = next(c for c in res.checks if c.id == "pullup-window" and c.subject == "SDA")
     assert chk.status == "fail"
     assert "segments" not in chk.fix and "bring Cb below" not in chk.fix
+    return chk, res
+
+
+def test_a_sink_far_too_weak_for_any_load_gets_no_sizing_advice(tmp_path):
+    # a target sinking 3 nA at 0.4 V (a rating typed in nA for mA); derived: Rp(min) =
+    # (3.3 V − 0.4 V) / 3 nA = 967 MΩ, so only a Cb of femtofarads rises within
+    # Fast-mode's 300 ns (UM10204 rev. 6 table 10); the advice had named a buffer
+    # splitting the bus into hundreds of thousands of segments
+    chk, res = _weak_sink(tmp_path, "3 nA")
     assert "no shorter trace, buffer or active pull-up makes up for so weak a sink" \
         in chk.fix
     assert "is rated 3 nA" in chk.fix  # the sink that would do stays named
@@ -439,32 +446,11 @@ def test_a_sink_far_too_weak_for_any_load_gets_no_sizing_advice(tmp_path):
 
 
 def test_a_sink_that_no_segment_could_suit_gets_no_sizing_advice(tmp_path):
-    # invented test input: a target sinking 20 µA; derived: Rp(min) = 2.9 V / 20 µA =
-    # 145 kΩ, under which only 2.39 pF rises in Fast-mode's 300 ns (UM10204 rev. 6 table
-    # 10): 8.4 times less than the bus (under the tenfold rule), but less than the
-    # target's own pin, so no buffer segment could be that light: the advice had named
-    # nine of them
-    from test_opendrain import HEAD, PARTS
-
-    from pinlib.engines import opendrain
-    from pinlib.model.design import load_design
-
-    lib = tmp_path / "lib"
-    lib.mkdir()
-    (lib / "weak.toml").write_text(
-        'format = "pinlib.part/1"\nid = "t-weak"\nextends = "t-target"\n'
-        'title = "Test target, 20 µA sink"\n'
-        'provenance = { basis = "estimate", source = "test data, invented" }\n'
-        '[pins.sda]\ni_ol = "20 µA"\n', encoding="utf-8")
-    path = tmp_path / "d.toml"
-    path.write_text(HEAD + one_bus(devices=[
-        '{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
-        '{ ref = "U2", part = "t-weak" }']), encoding="utf-8")
-    d = load_design(path, library_folders=[PARTS, lib])
-    res = opendrain.evaluate_bus(d.buses[0], d)
-    chk = next(c for c in res.checks if c.id == "pullup-window" and c.subject == "SDA")
-    assert chk.status == "fail"
-    assert "segments" not in chk.fix and "bring Cb below" not in chk.fix
+    # a target sinking 20 µA; derived: Rp(min) = 2.9 V / 20 µA = 145 kΩ, under which
+    # only 2.39 pF rises in Fast-mode's 300 ns (UM10204 rev. 6 table 10): 8.4 times less
+    # than the bus (under the tenfold rule), but less than the target's own pin, so no
+    # buffer segment could be that light: the advice had named nine of them
+    chk, _ = _weak_sink(tmp_path, "20 µA")
     assert "less than U2's own pin" in chk.fix
 
 
