@@ -206,7 +206,8 @@ IMPLAUSIBLE_VALUE = "an implausible value for this field"
 # typside.py, by plausible.py (warnings: the part still loads)
 TYP_BEYOND_LIMIT = "the typical value lies beyond the limit beside it, {limit}"
 TYP_SIDE_RULE = ("a typ {rel} the value, which for {field} is the {side} (one of "
-                 "them mistyped, or the two swapped?)")
+                 "them mistyped, the two swapped, or a typ from other conditions than "
+                 "the limit's?)")
 TYP_NEED_RULE = ("a typ at most the value: {field} is the least the part must be given, and "
                  "its typical need lies at or below it (one of them mistyped, or the two "
                  "swapped?)")
