@@ -203,7 +203,7 @@ SOURCE_NOT_TEXT = "a source must be text"
 LEVEL_RANGE = "a multiple of VDD within ±2 plus an offset within {lo} V to {hi} V"
 # plausible.py (warnings: the part still loads)
 IMPLAUSIBLE_VALUE = "an implausible value for this field"
-# typside.py, by plausible.py (warnings: the part still loads)
+# plausible.py, a typ beside its limit (warnings: the part still loads)
 TYP_BEYOND_LIMIT = "the typical value lies beyond the limit beside it, {limit}"
 TYP_SIDE_RULE = ("a typ {rel} the value, which for {field} is the {side} (one of "
                  "them mistyped, the two swapped, or a typ from other conditions than "
