@@ -29,7 +29,7 @@ def override_warnings(lib, in_scope=lambda path: True) -> list[LibraryError]:
             was = read_part_file(builtin_path, builtin=True).raw.get("category")
         except LibraryError:
             continue
-        part = lib.parts.get(pid) if pid in lib.parts else None
+        part = lib.parts.get(pid)
         now = part.category if part is not None else pf.raw.get("category")
         where = {"file": str(pf.path), "line": pf.line(("id",)), "field": "id"}
         if isinstance(was, str) and isinstance(now, str) and was != now:

@@ -261,7 +261,9 @@ class IbisImporter(_Panel):
 
         if self.preview() is None:
             return None
-        written: list[str] = []  # what the part lacks to be of use on a bus
+        # the import's warnings: the fit's, as the preview gave them, then what the part
+        # lacks to be of use on a bus
+        written: list[str] = []
         try:
             folders = self.library_folders + (
                 [self.folder] if path_kind(self.folder)[0] == FOLDER else [])
@@ -272,7 +274,7 @@ class IbisImporter(_Panel):
             self.message.value = error_html(for_panel(err))
             return None
         self.written = path
-        self.warnings = [w for w in written if w not in self.warnings] + self.warnings
+        self.warnings = written
         self.message.value = block(f"created <code>{e(path)}</code>") + "".join(
             block(f"warning: {e(w)}") for w in self.warnings)
         return path
