@@ -122,7 +122,7 @@ def route_diagram(line, width: int = DIAGRAM_WIDTH, start: str | None = None) ->
     starts = [(root, "")]  # (the point a row goes on from, the row so far)
     while starts:
         point, row = starts.pop(0)
-        lead = len(row) - len(row.lstrip(" "))
+        lead = _indent(row)
         row += point
         first = len(row)
         branches = []
@@ -140,7 +140,7 @@ def route_diagram(line, width: int = DIAGRAM_WIDTH, start: str | None = None) ->
         rows.append(row)
         # a row's branches follow it, the farthest along first (each right below the
         # row it leaves, not below another branch's rows), those of one point in order
-        branches.sort(key=lambda b: -(len(b[1]) - len(b[1].lstrip(" "))))
+        branches.sort(key=lambda b: -_indent(b[1]))
         starts[0:0] = branches
     return _join_siblings(rows)
 
@@ -150,7 +150,7 @@ def _join_siblings(rows: list[str]) -> list[str]:
     ``├``, and ``│`` down from it through the rows between (its own path's)."""
     out = list(rows)
     for i, row in enumerate(out):
-        col = len(row) - len(row.lstrip(" "))
+        col = _indent(row)
         if not row.startswith("└ ", col):
             continue
         head = row[col:].split(" ─", 1)[0].replace("└", "", 1)  # "└ T1": its point
@@ -170,6 +170,7 @@ def _join_siblings(rows: list[str]) -> list[str]:
 
 
 def _indent(row: str) -> int:
+    """The spaces a row of the route diagram starts with."""
     return len(row) - len(row.lstrip(" "))
 
 
