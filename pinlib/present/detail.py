@@ -92,7 +92,7 @@ def _checks(g: Group, indent: str, cols: int, sources: dict[str, int]) -> list[s
 
 
 def _flights(b: BusResult, cols: int) -> list[str]:
-    rows = flight_rows(b) if b.protocol == "spi" else []
+    rows = flight_rows(b)
     if not rows:
         return []
     out = wrap(M.FLIGHTS_HEAD, cols, "  ", "    ")

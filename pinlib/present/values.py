@@ -153,8 +153,11 @@ def flight_rows(bus: BusResult) -> list[list[str]]:
     """Each SPI peripheral's flights, from its budget checks' ``details``
     (:data:`FLIGHTS`): ``[device, flight, earliest, latest]`` as text, a row where the
     device has a check that takes one end of it; "—" for the end no check takes, or a
-    flight with no time (a receiver that never crosses its threshold).  The text of
-    ``pinlib check --detail`` and the reports show the same rows."""
+    flight with no time (a receiver that never crosses its threshold); none on a bus
+    that is not SPI.  The text of ``pinlib check --detail`` and the reports show the
+    same rows."""
+    if bus.protocol != "spi":
+        return []
     got: dict[str, dict[str, dict]] = {}
     for c in bus.checks:
         if c.subject and isinstance(c.details, dict):

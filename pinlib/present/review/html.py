@@ -206,7 +206,7 @@ class _Html:
 
     def flights(self, b: BusResult):
         """An SPI bus's flights per peripheral (:func:`pinlib.present.values.flight_rows`)."""
-        rows = flight_rows(b) if b.protocol == "spi" else []
+        rows = flight_rows(b)
         if not rows:
             return
         self.w("<h3>Flights</h3>", f'<p class="meta">{_e(_flights_caption())}</p>', _TABLE,

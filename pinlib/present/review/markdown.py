@@ -237,7 +237,7 @@ class _Markdown:
         for head, _, grp, place in _groups(b):
             if head is None:
                 self.group(grp, place, "###")
-                rows = flight_rows(b) if b.protocol == "spi" else []
+                rows = flight_rows(b)
                 if rows:
                     self.w("### Flights", "", *_wrapped(_mt(_flights_caption())), "")
                     self.w(*_table(list(FLIGHT_HEAD), [[_m(x) for x in r] for r in rows]))
