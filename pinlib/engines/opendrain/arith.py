@@ -50,7 +50,8 @@ def low_levels(v, rp_lo, drivers, far, segs, signal: str, phys=pu) -> tuple[list
         if not far:
             vb = np.asarray(phys.low_level(v, rp_lo, d.r_sink, d.r_series), dtype=float)
             i = np.asarray(phys.sink_current(v, rp_lo, d.r_sink, d.r_series), dtype=float)
-            levels.append((_guaranteed(vb, i, d.i_ol, v, rp_lo), i, d, None))
+            # the level the sink guarantees: held to IOL past it (SINK_MODEL)
+            levels.append((np.asarray(pu.held_low_level(vb, v, rp_lo, d.i_ol)), i, d, None))
         else:
             # across a pass transistor the sink's datasheet point stays a resistance:
             # held to IOL, the level would rise to where the transistor stops conducting
@@ -72,18 +73,6 @@ def low_levels(v, rp_lo, drivers, far, segs, signal: str, phys=pu) -> tuple[list
         levels.append((np.asarray(vf, dtype=float), None, d, link))
         plain.append(levels[-1][0])
     return levels, offset_levels, plain
-
-
-def _guaranteed(vb, i, i_ol, v, rp_lo):
-    """The low level the sink guarantees on a segment without a pass transistor: ``vb``
-    (its datasheet point read as a resistance) where the current ``i`` stays within its
-    ``i_ol``; beyond, the sink is held to that constant current
-    (:data:`pinlib.engines.opendrain.explain.SINK_MODEL`, as the fall time takes it)
-    and the line settles where the pull-up ``rp_lo`` to ``v`` carries ``i_ol``. [V]"""
-    over = i > i_ol
-    if not np.any(over):
-        return vb
-    return np.where(over, np.maximum(v - i_ol * rp_lo, vb), vb)
 
 
 #: What bounds a driver's fall time (the ``kind`` of :func:`fall_bounds`).

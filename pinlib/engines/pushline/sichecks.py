@@ -19,6 +19,7 @@ from pinlib.engines.pushline.rules import (
     UNDERSHOOT_RULE,
 )
 from pinlib.model.result import Check, check_max, check_min, rule_of_thumb
+from pinlib.physics.pullup.levels import held_low_level
 
 
 def _si_checks(a: LineAnalysis, cases: dict, clock: float | None, clock_line: bool,
@@ -228,10 +229,7 @@ def _guaranteed_low(d: Endpoint, c) -> float:
     i_ol, rp = d.pin.i_ol, c.model.r_rise
     if i_ol is None or d.level("v_ol") is None or not (0.0 < rp < math.inf):
         return c.v_low
-    i_ol = float(i_ol.at())
-    if (c.v_high - c.v_low) / rp <= i_ol:
-        return c.v_low
-    return max(c.v_low, c.v_high - i_ol * rp)
+    return float(held_low_level(c.v_low, c.v_high, rp, float(i_ol.at())))
 
 
 def _level_checks(rx: Endpoint, d: Endpoint, c, v_il: float, v_ih: float,

@@ -42,6 +42,7 @@ from pinlib.physics.pullup.inputs import (  # noqa: F401
     _positive,
 )
 from pinlib.physics.pullup.levels import (  # noqa: F401
+    held_low_level,
     high_level,
     low_level,
     parallel,

@@ -12,8 +12,8 @@ from pinlib.physics.pullup.inputs import _arr, _non_negative, _out, _positive
 
 _INF = float("inf")
 
-__all__ = ["parallel", "sink_resistance", "low_level", "sink_current", "high_level",
-           "static_power", "translator_low_levels"]
+__all__ = ["parallel", "sink_resistance", "low_level", "held_low_level", "sink_current",
+           "high_level", "static_power", "translator_low_levels"]
 
 
 def parallel(*resistances):
@@ -114,6 +114,39 @@ def _low_level(vdd, rp, r_sink, r_series):
     # written with 1/rp so that rp = inf (no pull-up) gives 0 V
     g = 1.0 / rp
     return vdd * r_low * g / (1.0 + r_low * g)
+
+
+def held_low_level(v_low, vdd, rp, i_ol):
+    """The low level a sink guarantees, from the one :func:`low_level` gives it as a
+    resistance through its datasheet point (VOL at IOL): that level while the pull-up
+    draws at most ``i_ol``; beyond, the sink is held to ``i_ol`` (its guarantee above
+    VOL), and the line settles where the pull-up ``rp`` to ``vdd`` carries it.
+
+    Parameters
+    ----------
+    v_low : float or array_like
+        The level with the sink read as a resistance. [V]
+    vdd : float or array_like
+        Pull-up rail (the high level the line falls from). [V]
+    rp : float or array_like
+        Pull-up resistance. [Ω]
+    i_ol : float or array_like
+        The sink current its part states its low level at. [A]
+
+    Returns
+    -------
+    float or numpy.ndarray
+        ``max(v_low, vdd - i_ol·rp)`` where ``(vdd - v_low) / rp > i_ol``, else
+        ``v_low``. [V]
+
+    Examples
+    --------
+    >>> round(float(held_low_level(0.527, 3.465, 742.0, 3e-3)), 3)
+    1.239
+    """
+    v_low, vdd, rp, i_ol = (np.asarray(x, dtype=float) for x in (v_low, vdd, rp, i_ol))
+    over = (vdd - v_low) / rp > i_ol
+    return _out(np.where(over, np.maximum(v_low, vdd - i_ol * rp), v_low))
 
 
 def sink_current(vdd, rp, r_sink, r_series=0.0):
