@@ -980,6 +980,18 @@ def _(env):
     return _below_ground(env).message
 
 
+@case("SINK_BELOW_SPEC", M.SINK_BELOW_SPEC.format(
+    rule="VOL1 0.4 V at 3 mA",
+    source="I2C-bus specification UM10204 rev. 6, table 9 (VOL, IOL)"))  # published
+def _(env):
+    # invented test part: 2 mA at 0.4 V, below the 3 mA UM10204 rev. 6 table 9 asks
+    env.write("team/p.toml", PART.format(id="p").replace(
+        'c_in = "8 pF"', 'c_in = "8 pF"\nv_ol = "0.4 V"\ni_ol = "2 mA"', 1))
+    d = env.design(I2C_BUS.replace('"eeprom-i2c"', '"p"'), library_folders=[env.tmp / "team"])
+    from pinlib.engines.dispatch import check_design
+    return " ".join(check_design(d).buses[0].notes)
+
+
 def _swapped_corners(env):
     from pinlib.library.plausible import part_warnings
 

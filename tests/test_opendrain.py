@@ -1566,3 +1566,49 @@ def test_across_a_pass_transistor_the_low_level_keeps_the_sink_as_a_resistance()
         for c in seg.checks:
             if c.id == "v-ol":
                 assert "at most its IOL above its VOL" not in c.message
+
+
+# --------------------------------------------------------------------------- sink below the spec
+@pytest.mark.parametrize(("v_ol", "i_ol", "mode", "supply", "least"), [
+    # a resistance up to the rating: 0.4 V · 2 mA / 0.4 V = 2 mA
+    ("0.4 V", "2 mA", "fast", "3.3 V", 2e-3),
+    # rated at 0.2 V: beyond its rating the sink holds at 2 mA
+    ("0.2 V", "2 mA", "fast", "3.3 V", 2e-3),
+    # 4 mA at 0.6 V: 0.4 V / 150 Ω = 2.67 mA at the specification's VOL1
+    ("0.6 V", "4 mA", "fast", "3.3 V", 0.4 / 150),
+    # 6 mA at 0.8 V: 3 mA at 0.4 V, as the specification asks: no note
+    ("0.8 V", "6 mA", "fast", "3.3 V", None),
+    # Fast-mode Plus asks 20 mA at 0.4 V: 6 mA at 0.4 V falls short
+    ("0.4 V", "6 mA", "fast-plus", "3.3 V", 6e-3),
+    # on a 1.8 V rail VOL2 0.2·VDD at 2 mA: 2 mA at 0.36 V meets it
+    ("0.36 V", "2 mA", "fast", "1.8 V", None),
+    # SMBus: below table 4's high-power 4 mA, but a low-power device (table 3) sinks only
+    # 350 µA (published: SMBus 3.1, tables 3 and 4): no note
+    ("0.4 V", "3 mA", "100k", "3.3 V", None),
+])
+def test_a_sink_rated_below_the_specification_is_noted(tmp_path, v_ol, i_ol, mode, supply,
+                                                       least):
+    # published: UM10204 rev. 6, table 9: IOL 3 mA at VOL1 0.4 V (Standard-, Fast-mode),
+    # 20 mA at 0.4 V (Fast-mode Plus), 2 mA at VOL2 0.2·VDD (VDD <= 2 V); the part's own
+    # points are invented test data
+    text = (PARTS / "t-target.toml").read_text(encoding="utf-8")
+    text = text.replace('id = "t-target"', 'id = "t-weak"')
+    text = text.replace('v_ol = "0.4 V"', f'v_ol = "{v_ol}"', 1)
+    text = text.replace('i_ol = "3 mA"', f'i_ol = "{i_ol}"', 1)
+    (tmp_path / "t-weak.toml").write_text(text, encoding="utf-8")
+    path = tmp_path / "d.toml"
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+               '{ ref = "U2", part = "t-weak" }']
+    protocol = "smbus" if mode == "100k" else "i2c"
+    path.write_text(HEAD + one_bus(mode=mode, supply=supply, pullup="2.2 kΩ", devices=devices,
+                                   protocol=protocol), encoding="utf-8")
+    d = load_design(path, library_folders=[PARTS, tmp_path])
+    notes = [n for n in opendrain.evaluate_bus(d.buses[0], d).notes
+             if n.startswith("sink rated below")]
+    if least is None:
+        assert notes == []
+        return
+    (note,) = notes
+    assert f"U2 SDA ({format_si(least, 'A')} at " in note
+    # the controller's 3 mA at 0.4 V (invented test data) meets Fast-mode, not Fast-mode Plus
+    assert ("U1 SDA (3 mA at 400 mV)" in note) == (mode == "fast-plus")

@@ -564,6 +564,12 @@ FLIGHTS_HEAD = ("flights: from the driver's timing reference (its output at 50 %
 WORST_YES_NO = "a yes/no check, which has no margin, sets the status"
 STATUS_SET_ELSEWHERE = ("† {status} set by {check}: a check no part at {ref} can move "
                         "(pinlib check shows it)")
+#: A note on an I2C/SMBus line: pins whose stated sink guarantees less current at the
+#: specification's VOL than the specification asks of every device.
+SINK_BELOW_SPEC = ("sink rated below the specification's {rule} ({source}): the pull-up "
+                   "window follows each pin's own rating, but the part itself does not meet "
+                   "the specification (a pull-up sized to the specification, on a module or "
+                   "another board, may be too strong for it)")
 LEVEL_BELOW_GROUND = "an output low level below ground at this rail"
 LEVEL_BELOW_GROUND_EXPECTED = ("a level at or above 0 V; it resolves to {level} at VDD {vdd} "
                                "(write it in volts, or relative to a supply it suits)")

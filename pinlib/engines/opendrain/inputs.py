@@ -367,6 +367,8 @@ def _drivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
         v_ol = _corner_values(vol_s, t, v, vtol, "max")
         _refuse_below_ground(v_ol, vol_s, t, v, vtol)
         i_ol = float(iol_s.value)
+        if lim.protocol == "i2c" and t.pin.v_ol is not None and t.pin.i_ol is not None:
+            _below_spec_sink(seg_in, t, v_ol, i_ol, d_vol, d_iol, rule, lim, up)
         src = t.source("i_ol") if t.pin.i_ol is not None else lim.source_sink
         offset = None
         if _offset_side(t.dev) == t.dev.side and t.dev.side is not None:
@@ -376,6 +378,27 @@ def _drivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
         drivers.append(_Driver(t, v_ol, i_ol, v_ol / i_ol, t.dev.series_resistor or 0.0, src,
                                offset))
     return drivers
+
+
+def _below_spec_sink(seg_in: SegmentInputs, t: _Tap, v_ol: np.ndarray, i_ol: float,
+                     d_vol: Sourced, d_iol: Sourced, rule: str, lim: OpenDrainLimits,
+                     up: str) -> None:
+    """A note where a pin's stated sink guarantees less current at the specification's VOL
+    than UM10204 rev. 6 table 9 asks of every device of the mode (not on SMBus, whose
+    low-power devices of table 3 sink only 350 µA).  The pin's point is taken as the
+    engine takes it: a resistance v_ol/i_ol up to its rating, the current held at i_ol
+    beyond it; at the rail corner of least current.  The pull-up window already follows
+    the pin's own rating: the note says that the part is off the specification."""
+    spec_vol = np.asarray(d_vol.at(seg_in.vdd), dtype=float)
+    spec_iol = float(d_iol.value)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        guaranteed = i_ol * np.minimum(1.0, spec_vol / np.maximum(v_ol, 1e-30))
+    least = float(np.min(guaranteed))
+    if not least < spec_iol * (1.0 - 1e-9):
+        return
+    _default(seg_in, M.SINK_BELOW_SPEC.format(rule=rule, source=lim.source_sink),
+             f"{t.label} {up} ({format_si(least, 'A')} at "
+             f"{format_si(float(np.max(spec_vol)), 'V')})")
 
 
 def _receivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
