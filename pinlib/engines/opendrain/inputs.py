@@ -393,12 +393,14 @@ def _below_spec_sink(seg_in: SegmentInputs, t: _Tap, v_ol: np.ndarray, i_ol: flo
     spec_iol = float(d_iol.value)
     with np.errstate(divide="ignore", invalid="ignore"):
         guaranteed = i_ol * np.minimum(1.0, spec_vol / np.maximum(v_ol, 1e-30))
-    least = float(np.min(guaranteed))
+    at = int(np.argmin(guaranteed))
+    least = float(guaranteed.flat[at])
     if not least < spec_iol * (1.0 - 1e-9):
         return
+    # the VOL of the corner it is taken at (VOL2 follows the rail: its low end)
+    vol = float(np.broadcast_to(spec_vol, guaranteed.shape).flat[at])
     _default(seg_in, M.SINK_BELOW_SPEC.format(rule=rule, source=lim.source_sink),
-             f"{t.label} {up} ({format_si(least, 'A')} at "
-             f"{format_si(float(np.max(spec_vol)), 'V')})")
+             f"{t.label} {up} ({format_si(least, 'A')} at {format_si(vol, 'V')})")
 
 
 def _receivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
