@@ -1329,9 +1329,15 @@ def test_the_gpio_example_design_passes_with_figures_worked_by_hand():
         (hi - leak * rp * 0.99) * r_sink / (r_sink + rp * 0.99), rel=1e-6)
 
     ln = lines["enable"]
-    # derived: a push-pull output's guaranteed levels at the rail's worst corner
-    assert _at(ln, "level-high", "U3").value == pytest.approx(gpio_out.v_oh.at(lo), rel=1e-9)
-    assert _at(ln, "level-low", "U3").value == pytest.approx(gpio_out.v_ol.at(hi), rel=1e-9)
+    # derived: a push-pull output's rated levels (VOH at IOH, VOL at IOL) read as
+    # resistances from its rails (Ohm's law), at the FPGA input's leakage, the only
+    # current the line draws, at the rail's worst corner
+    i_leak = fpga_in.leakage.value
+    r_high = (lo - gpio_out.v_oh.at(lo)) / gpio_out.i_oh.value
+    r_low = gpio_out.v_ol.at(hi) / gpio_out.i_ol.value
+    assert _at(ln, "level-high", "U3").value == pytest.approx(lo - r_high * i_leak, rel=1e-9)
+    assert _at(ln, "level-low", "U3").value == pytest.approx(r_low * i_leak, rel=1e-9)
+    assert "read as" in _at(ln, "level-high", "U3").message
     # derived: the load (under 15 pF) is below the class's first edge point (2.5 ns at
     # 15 pF), so the edge is faster than that point, and no faster than half of it
     assert ln.figures["load_capacitance"].value < gpio_out.edges[0].load.value

@@ -21,7 +21,7 @@ from pinlib.engines.pushline.rules import (
 from pinlib.engines.pushline.sections import Stretch, line_model, needs_distributed
 from pinlib.engines.pushline.waves import EdgeWave, simulate_edge, solve_edges
 from pinlib.library.schema import Pin
-from pinlib.model.design import Device
+from pinlib.model.design import Device, Line
 from pinlib.physics import driver as drv
 from pinlib.physics import rc
 
@@ -176,6 +176,38 @@ def _pullups(loads: Sequence[Endpoint], driver: Endpoint,
             g += 1.0 / r
             rail = p.vdd if rail is None else min(rail, p.vdd)
     return (1.0 / g if g > 0 else None), (rail if rail is not None else driver.vdd)
+
+
+def open_drain_pullup(line: Line, loads: Sequence[Endpoint],
+                      driver: Endpoint) -> tuple[float | None, float]:
+    """The pull-up an open-drain ``driver`` on ``line`` pulls against, and its rail.
+
+    Parameters
+    ----------
+    line : Line
+        The line of the design (its own ``pullup`` and ``pullup_rail``). [1]
+    loads : sequence of Endpoint
+        Every pin on the line (the driver's own among them or not). [1]
+    driver : Endpoint
+        The open-drain pin. [1]
+
+    Returns
+    -------
+    tuple
+        The line's resistor in parallel with every pull-up the pins carry (``pullup``,
+        or ``pullup_internal`` of a device with ``internal_pullups``), nominal, or None
+        when there is none [Ω]; the rail they pull to (the lowest of theirs) [V].
+    """
+    others = [p for p in loads if p.device is not driver.device]
+    return _pullups(others, driver, _own_pullup(line, driver))
+
+
+def _own_pullup(line: Line, driver: Endpoint) -> tuple[float, float] | None:
+    """The line's own resistor and the rail it pulls to (the bus supply, set where the
+    line is analysed; the driver's rail where it is not), or None. [Ω, V]"""
+    if line.pullup is None:
+        return None
+    return float(line.pullup), float(line.pullup_rail or driver.vdd)
 
 
 def _open_drain_model(pin: Pin, vdd: float, r_pullup: float, notes: list,

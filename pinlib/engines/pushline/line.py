@@ -23,9 +23,10 @@ from pinlib.engines.pushline.analysis import (
 from pinlib.engines.pushline.drive import (
     _driver_model,
     _open_drain_model,
-    _pullups,
+    _own_pullup,
     carried_pullup,
     net_leakage,
+    open_drain_pullup,
 )
 from pinlib.engines.pushline.pins import Endpoint
 from pinlib.engines.pushline.rules import (
@@ -411,37 +412,6 @@ def line_stretches(line: Line) -> list:
     for w in caught:
         warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
     return list(got)
-
-
-def open_drain_pullup(line: Line, loads: Sequence[Endpoint],
-                      driver: Endpoint) -> tuple[float | None, float]:
-    """The pull-up an open-drain ``driver`` on ``line`` pulls against, and its rail.
-
-    Parameters
-    ----------
-    line : Line
-        The line of the design (its own ``pullup`` and ``pullup_rail``). [1]
-    loads : sequence of Endpoint
-        Every pin on the line (the driver's own among them or not). [1]
-    driver : Endpoint
-        The open-drain pin. [1]
-
-    Returns
-    -------
-    tuple
-        The line's resistor in parallel with every pull-up the pins carry (``pullup``,
-        or ``pullup_internal`` of a device with ``internal_pullups``), nominal, or None
-        when there is none [Ω]; the rail they pull to (the lowest of theirs) [V].
-    """
-    return _pullups(_others(loads, driver), driver, _own_pullup(line, driver))
-
-
-def _own_pullup(line: Line, driver: Endpoint) -> tuple[float, float] | None:
-    """The line's own resistor and the rail it pulls to (the bus supply, set where the
-    line is analysed; the driver's rail where it is not), or None. [Ω, V]"""
-    if line.pullup is None:
-        return None
-    return float(line.pullup), float(line.pullup_rail or driver.vdd)
 
 
 def _driver_models(a: LineAnalysis, res: LineResult) -> dict:

@@ -8,7 +8,8 @@ import math
 import numpy as np
 
 from pinlib.core.labels import plural_s
-from pinlib.engines.pushline.analysis import LineAnalysis, _fmt
+from pinlib.engines.pushline.analysis import LineAnalysis, _fmt, _others
+from pinlib.engines.pushline.drive import carried_pullup, net_leakage, open_drain_pullup
 from pinlib.engines.pushline.pins import Endpoint
 from pinlib.engines.pushline.rules import (
     _RINGING_SOURCE,
@@ -19,7 +20,7 @@ from pinlib.engines.pushline.rules import (
     UNDERSHOOT_RULE,
 )
 from pinlib.model.result import Check, check_max, check_min, rule_of_thumb
-from pinlib.physics.pullup.levels import held_low_level
+from pinlib.physics.pullup.levels import held_low_level, loaded_level
 
 
 def _si_checks(a: LineAnalysis, cases: dict, clock: float | None, clock_line: bool,
@@ -43,7 +44,7 @@ def _si_checks(a: LineAnalysis, cases: dict, clock: float | None, clock_line: bo
             checks.append(_transition_check(rx, cases, a.net is not None, warn, a.signal))
         for ref, c in cases.items():
             if ref != rx.ref:
-                checks += _level_checks(rx, drivers[ref], c, v_il, v_ih, warn,
+                checks += _level_checks(a, rx, drivers[ref], c, v_il, v_ih, warn,
                                         named=len(drivers) > 1, advise=not bridged)
     if clock and a.net is not None:
         checks += [_edge_check(cases, clock, warn, rx) for rx in a.receivers]
@@ -202,21 +203,58 @@ def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
                                     + (f" ({whose})" if whose else ""))
 
 
-def _driver_levels(d: Endpoint, c) -> tuple[float, str, float, str]:
-    """A driver's VOH, its source, VOL, its source: an open-drain driver's from the
-    pull-up and sink on the net; a push-pull one's from its part, or rail to rail."""
+def _driver_levels(d: Endpoint, c, a: LineAnalysis) -> tuple[float, str, float, str, str, str]:
+    """A driver's VOH, its source, VOL, its source, and how each was taken (words for the
+    message, empty where the level is the part's as stated): an open-drain driver's from
+    the pull-up and sink on the net; a push-pull one's from its part's rated point at
+    the current the line draws (:func:`_rated_at_load`), or rail to rail."""
     if d.pin.drive == "open-drain":
         src = f"{d.label}: pull-up and sink on the net"
-        return c.v_high, src, _guaranteed_low(d, c), src
+        return c.v_high, src, _guaranteed_low(d, c), src, "", ""
     v_oh = d.level("v_oh")
     v_ol = d.level("v_ol")
     oh_src = d.source("v_oh") if v_oh is not None else ""
     ol_src = d.source("v_ol") if v_ol is not None else ""
+    oh_how = ol_how = ""
     if v_oh is None:
         v_oh, oh_src = d.vdd, f"{d.label}: rail-to-rail CMOS output assumed"
+    elif d.pin.i_oh is not None:
+        v_oh, oh_how = _rated_at_load(d, a, d.vdd, v_oh, float(d.pin.i_oh.at()))
     if v_ol is None:
         v_ol, ol_src = 0.0, f"{d.label}: rail-to-rail CMOS output assumed"
-    return v_oh, oh_src, v_ol, ol_src
+    elif d.pin.i_ol is not None:
+        v_ol, ol_how = _rated_at_load(d, a, 0.0, v_ol, float(d.pin.i_ol.at()))
+    return v_oh, oh_src, v_ol, ol_src, oh_how, ol_how
+
+
+def _rated_at_load(d: Endpoint, a: LineAnalysis, v_src: float, rated: float,
+                   i_rated: float) -> tuple[float, str]:
+    """A push-pull driver's level at the current the line draws, and words saying so.
+
+    Its part states the level at a current (VOH at IOH, VOL at IOL: LVTTL's 2.4 V at
+    8 mA) far above what CMOS inputs draw; the point is read as a resistance from the
+    rail (``physics.pullup.loaded_level``), as the open-drain engine reads a sink, and
+    loaded with the other pins' stated leakage and the net's pull-ups (a low level that
+    draws more than its rating from them is held as :func:`held_low_level` holds it).
+    Pins that state no leakage add none. [V]"""
+    if not i_rated > 0.0:
+        return rated, ""
+    high = v_src > 0.0
+    r_src = max(abs(v_src - rated), 0.0) / i_rated
+    pulled = a.line.pullup is not None or any(carried_pullup(p) for p in a.loads)
+    rp, rail = open_drain_pullup(a.line, a.loads, d) if pulled else (None, d.vdd)
+    leak = net_leakage(_others(a.loads, d))
+    # leakage takes the level away from the rail it is driven to: out of a high pin,
+    # into a low one
+    level = loaded_level(v_src, r_src, leak if high else -leak, rp, rail)
+    if not high and rp is not None:
+        level = float(held_low_level(level, rail, rp, i_rated))
+    drawn = abs(v_src - level) / r_src if r_src > 0.0 else leak
+    name = "VOH" if high else "VOL"
+    load = (f"at the {_fmt(drawn, 'A')} the line draws" if drawn > 0.0 else
+            "with no current drawn (no pin on the line states a leakage)")
+    return level, (f" {load} (its rated {name} {_fmt(rated, 'V')} at "
+                   f"{_fmt(i_rated, 'A')} read as {_fmt(r_src, 'Ω')})")
 
 
 def _guaranteed_low(d: Endpoint, c) -> float:
@@ -232,12 +270,12 @@ def _guaranteed_low(d: Endpoint, c) -> float:
     return float(held_low_level(c.v_low, c.v_high, rp, float(i_ol.at())))
 
 
-def _level_checks(rx: Endpoint, d: Endpoint, c, v_il: float, v_ih: float,
+def _level_checks(a: LineAnalysis, rx: Endpoint, d: Endpoint, c, v_il: float, v_ih: float,
                   warn: float, named: bool = False, advise: bool = True) -> list[Check]:
     """A driver's VOH/VOL against one receiver's VIH/VIL; ``named``: the line has more
     than one driver, and the subject names this one (``U3 from U1``); ``advise``: a
     high level short of VIH across two rails says to shift the level."""
-    v_oh, oh_src, v_ol, ol_src = _driver_levels(d, c)
+    v_oh, oh_src, v_ol, ol_src, oh_how, ol_how = _driver_levels(d, c, a)
     subject = f"{rx.ref} from {d.ref}" if named else rx.ref
     fix = None
     if advise and v_oh < v_ih and rx.vdd > d.vdd:  # two domains: drive cannot mend it
@@ -247,12 +285,14 @@ def _level_checks(rx: Endpoint, d: Endpoint, c, v_il: float, v_ih: float,
     return [
         check_min(
             "level-high", v_oh, v_ih, "V", rx.source("v_ih"),
-            f"{d.label} VOH {_fmt(v_oh, 'V')} against {rx.label} VIH {_fmt(v_ih, 'V')}",
+            f"{d.label} VOH {_fmt(v_oh, 'V')}{oh_how} against {rx.label} VIH "
+            f"{_fmt(v_ih, 'V')}",
             warn_margin=warn, subject=subject, fix=fix,
             details={"driver": d.label, "driver_source": oh_src}),
         check_max(
             "level-low", v_ol, v_il, "V", rx.source("v_il"),
-            f"{d.label} VOL {_fmt(v_ol, 'V')} against {rx.label} VIL {_fmt(v_il, 'V')}",
+            f"{d.label} VOL {_fmt(v_ol, 'V')}{ol_how} against {rx.label} VIL "
+            f"{_fmt(v_il, 'V')}",
             warn_margin=warn, subject=subject, details={"driver": d.label,
                                                         "driver_source": ol_src}),
     ]

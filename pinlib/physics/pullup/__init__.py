@@ -44,6 +44,7 @@ from pinlib.physics.pullup.inputs import (  # noqa: F401
 from pinlib.physics.pullup.levels import (  # noqa: F401
     held_low_level,
     high_level,
+    loaded_level,
     low_level,
     parallel,
     sink_current,

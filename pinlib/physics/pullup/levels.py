@@ -4,6 +4,8 @@ through a pass-transistor translator."""
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from pinlib.core import messages as M
@@ -12,7 +14,8 @@ from pinlib.physics.pullup.inputs import _arr, _non_negative, _out, _positive
 
 _INF = float("inf")
 
-__all__ = ["parallel", "sink_resistance", "low_level", "held_low_level", "sink_current",
+__all__ = ["parallel", "sink_resistance", "low_level", "held_low_level", "loaded_level",
+           "sink_current",
            "high_level", "static_power", "translator_low_levels"]
 
 
@@ -147,6 +150,49 @@ def held_low_level(v_low, vdd, rp, i_ol):
     v_low, vdd, rp, i_ol = (np.asarray(x, dtype=float) for x in (v_low, vdd, rp, i_ol))
     over = (vdd - v_low) / rp > i_ol
     return _out(np.where(over, np.maximum(v_low, vdd - i_ol * rp), v_low))
+
+
+def loaded_level(v_src: float, r_src: float, i_out: float, rp: float | None = None,
+                 rail: float = 0.0) -> float:
+    r"""The DC level of a pin that drives ``v_src`` through ``r_src`` while the line
+    draws ``i_out`` out of it (its receivers' leakage; negative: into it), and a pull-up
+    ``rp`` to ``rail`` where there is one (Kirchhoff's current law at the pin).
+
+    A push-pull output's datasheet level is a point, VOH at IOH or VOL at IOL: read as
+    the resistance ``r_src`` = (VDD − VOH)/IOH or VOL/IOL, as the open-drain engine
+    reads a sink.  A MOS output's drop grows no faster than that line below the rated
+    current, so the level it gives at a lighter load is one the part still guarantees.
+
+    Parameters
+    ----------
+    v_src : float
+        The level the output drives unloaded: its rail (high), 0 (low). [V]
+    r_src : float
+        Its resistance through the rated point (0: an ideal source). [Ω]
+    i_out : float
+        Current drawn out of the pin by the line. [A]
+    rp : float or None
+        Pull-up on the line; None for none. [Ω]
+    rail : float
+        The pull-up's rail. [V]
+
+    Returns
+    -------
+    float
+        :math:`(v/r + V_{rail}/R_p - i)/(1/r + 1/R_p)`, or :math:`v - r\,i` without a
+        pull-up. [V]
+
+    Examples
+    --------
+    >>> round(loaded_level(3.3, 112.5, 20e-6), 6)  # 2.4 V at 8 mA, 20 µA drawn
+    3.29775
+    """
+    if r_src <= 0.0:
+        return float(v_src)
+    if rp is None or not 0.0 < rp < math.inf:
+        return float(v_src - r_src * i_out)
+    g = 1.0 / r_src + 1.0 / rp
+    return float((v_src / r_src + rail / rp - i_out) / g)
 
 
 def sink_current(vdd, rp, r_sink, r_series=0.0):
