@@ -24,9 +24,10 @@ How a line is built
   or stripline, the geometry's ``method`` or the default); per-length values give
   ``Z0 = delay / capacitance``; a cable class gives its capacitance, delay and
   impedance.  A section with a capacitance but no delay counts as a lumped
-  capacitance at the far end.
+  capacitance at the far end; one of 0 length is a point.
 * **Model.**  A line is electrically long (``transmission_line``) when its one-way
-  delay exceeds one sixth of the 10–90 % edge the driver makes into the pins alone
+  delay exceeds one sixth of the 10–90 % edge the driver makes into the pins and the
+  line's ``extra_capacitance`` alone, without the trace
   (:data:`LONG_LINE_RULE`); the ratio is reported so that users can apply another
   rule.  A long line is solved as a chain of lossless lines
   (:func:`pinlib.physics.waveform.distributed_response`).  A short one is solved as

@@ -48,7 +48,8 @@ class LineAnalysis:
     long : bool
         Electrically long by :data:`LONG_LINE_RULE`. [1]
     ratio : float
-        One-way delay over the driver's edge into the pins alone. [1]
+        One-way delay over the driver's edge into the pins and extra capacitance alone
+        (without the trace). [1]
     edge_alone : float
         That edge. [s]
     models : dict

@@ -1,0 +1,117 @@
+"""What the engine says about a push-pull line's route, its drivers and its edge (the
+audit of push-pull routes).
+
+The designs are invented test data: the parts of ``tests/data/pushpull`` (pp-ctrl drives
+through 20 Ω, pp-periph's CIPO through 30 Ω) and per-length stretches whose Z0 is
+``delay / capacitance``."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from pinlib.engines.dispatch import check_design
+from pinlib.model.design import load_design
+
+PARTS = Path(__file__).parent / "data" / "pushpull"
+
+# invented test data: 16 cm of 50 Ω (60 ps/cm over 1.2 pF/cm) from the driver, then
+# 4 cm of 80 Ω (60 ps/cm over 0.75 pF/cm)
+NEAR = ('{ from = "U1", to = "U2", length = "16 cm", capacitance = "1.2 pF/cm", '
+        'delay = "60 ps/cm" }')
+FAR = ('{ from = "U2", to = "U3", length = "4 cm", capacitance = "0.75 pF/cm", '
+       'delay = "60 ps/cm" }')
+
+
+def _gpio(tmp_path, *stretches, extra="", length=None):
+    line = (f'length = "{length}", capacitance = "1 pF/cm"' if length else
+            'series_resistor = "auto", route = [\n  ' + ",\n  ".join(stretches) + "\n]")
+    text = f"""format = "pinlib.design/1"
+title = "route termination test (invented)"
+library = ["{PARTS.as_posix()}"]
+
+[[bus]]
+id = "g"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [
+  {{ ref = "U1", part = "pp-ctrl", role = "controller", pin = "reset" }},
+  {{ ref = "U2", part = "pp-periph", pin = "reset" }},
+  {{ ref = "U3", part = "pp-periph", pin = "reset" }},
+]
+lines.reset = {{ {line}{extra} }}
+"""
+    return _run(tmp_path, text)
+
+
+def _run(tmp_path, text):
+    path = tmp_path / "d.toml"
+    path.write_text(text, encoding="utf-8")
+    bus = check_design(load_design(path)).buses[0]
+    return bus.lines[0], bus
+
+
+SPI_HEAD = f"""format = "pinlib.design/1"
+title = "route termination test, CIPO (invented)"
+library = ["{PARTS.as_posix()}"]
+
+[[bus]]
+id = "s"
+protocol = "spi"
+clock = "10 MHz"
+supply = "3.3 V"
+devices = [
+  {{ ref = "U1", part = "pp-ctrl", role = "controller" }},
+  {{ ref = "U2", part = "pp-periph" }},
+  {{ ref = "U3", part = "pp-periph" }},
+]
+lines.sclk = {{ length = "3 cm", capacitance = "1 pF/cm", delay = "60 ps/cm" }}
+"""
+# invented test data: a CIPO daisy chain of 50 Ω stretches, U2 at 2 cm and U3 at 15 cm
+CIPO = SPI_HEAD + """lines.cipo = { series_resistor = "%s", route = [
+  { from = "U1", to = "U2", length = "2 cm", capacitance = "1.2 pF/cm", delay = "60 ps/cm" },
+  { from = "U2", to = "U3", length = "13 cm", capacitance = "1.2 pF/cm", delay = "60 ps/cm" },
+] }
+"""
+
+
+def _cipo(bus):
+    return next(x for x in bus.lines if x.signal == "cipo")
+
+
+def test_every_cipo_swing_message_names_the_driving_peripheral(tmp_path):
+    # at a peripheral's own CIPO pin only the other peripheral drives: the message named
+    # no driver there, though the line has two
+    _, bus = _run(tmp_path, CIPO % "none")
+    checks = [c for c in _cipo(bus).checks if c.id in ("overshoot", "undershoot")]
+    by = {"U1": None, "U2": "U3", "U3": "U2"}
+    assert {c.subject for c in checks} == set(by)
+    for c in checks:
+        if by[c.subject] is not None:
+            assert f"at {c.subject}.cipo while {by[c.subject]} drives" in c.message
+        else:
+            assert " drives" in c.message  # the controller: whichever is worst
+
+
+def test_the_long_line_note_names_the_extra_capacitance_in_its_edge(tmp_path):
+    # g1 of the audit: the edge compared is into the pins and the extra capacitance; the
+    # note said "the pins alone"
+    with_extra, _ = _gpio(tmp_path, length="5 cm", extra=', extra_capacitance = "30 pF"')
+    note = next(n for n in with_extra.notes if n.startswith("one-way delay"))
+    assert "edge into the pins and extra capacitance alone" in note
+    bare, _ = _gpio(tmp_path, length="5 cm")
+    note = next(n for n in bare.notes if n.startswith("one-way delay"))
+    assert "edge into the pins alone" in note
+
+
+def test_a_stretch_of_zero_length_is_noted_as_a_point(tmp_path):
+    # v1 of the audit: a 0 cm stretch was said to count as a lumped capacitance, half at
+    # each of its points; docs/formats/design.md: a stretch of 0 length is a point
+    point = '{ from = "U1", to = "T1", length = "0 cm", capacitance = "1 pF/cm" }'
+    lumped = '{ from = "T1", to = "T2", length = "1 cm", capacitance = "1 pF/cm" }'
+    rest = ('{ from = "T2", to = "U2", length = "16 cm", capacitance = "1.2 pF/cm", '
+            'delay = "60 ps/cm" }')
+    line, _ = _gpio(tmp_path, point, lumped, rest, FAR)
+    assert ("a section of 0 length (U1–T1) is a point, without capacitance: its two "
+            "points are one") in line.notes
+    assert ("a section without a delay (T1–T2) counts as a lumped capacitance half at "
+            "each of its two points") in line.notes
