@@ -142,6 +142,21 @@ def _cipo(bus):
     return next(x for x in bus.lines if x.signal == "cipo")
 
 
+def test_the_cipo_note_says_to_fit_a_resistor_at_each_peripheral(tmp_path):
+    # the note said "each of which drives through this one resistor", but the model puts
+    # a resistor of the value at each driving peripheral's pin
+    _, bus = _run(tmp_path, CIPO % "auto")
+    line = _cipo(bus)
+    # derived: 50 - 30 = 20 Ω, an E24 value
+    assert line.figures["series_resistor"].value == 20.0
+    la = bus.workings.lines["cipo"]
+    assert {c.rs for c in la.cases.values()} == {20.0}  # one at each driver's point
+    note = _auto_note(line)
+    assert "fit one resistor of this value at each driver's output (U2.cipo, U3.cipo)" \
+        in note
+    assert "this one resistor" not in note
+
+
 def test_every_cipo_swing_message_names_the_driving_peripheral(tmp_path):
     # at a peripheral's own CIPO pin only the other peripheral drives: the message named
     # no driver there, though the line has two

@@ -47,8 +47,8 @@ How a line is built
   one (what a series resistor cures; the choice so does not depend on the clock);
   otherwise ``Rs = Z0 - r_out`` (Z0 of the stretch at the driver,
   :attr:`LineAnalysis.z0`, whichever order the file writes the stretches in; ``r_out``
-  the mean of the driver's rise and fall resistance; on CIPO the strongest driver's)
-  rounded to the nearest
+  the mean of the driver's rise and fall resistance; on CIPO the strongest driver's, a
+  resistor of that value then sitting at each peripheral's pin) rounded to the nearest
   E24 value (by ratio), and the line evaluated again.  Where the sections differ in
   Z0 (a short trace into a cable) the match of each other section's Z0 is tried and
   kept only where it brings the overshoot, undershoot and ringing checks to a better

@@ -117,6 +117,11 @@ def _auto_series(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
                      f"already matches or exceeds Z0 {_fmt(a.z0, 'Ω')})")
 
 
+#: Driver labels the note on a line of several drivers lists in full (beyond, the first
+#: and the last).
+_DRIVERS_NAMED = 4
+
+
 def _matched_words(a: LineAnalysis, r_drv: float) -> str:
     """Whose resistance "auto" matched and how it was made: the mean of a driver's
     fitted rise and fall (at its fast corner, ``pins.<name>.fast``, where its part states
@@ -127,11 +132,14 @@ def _matched_words(a: LineAnalysis, r_drv: float) -> str:
             continue
         at = m.fast if m.fast is not None else m
         corner = " at its fast corner" if m.fast is not None else ""
-        n = sum(1 for e in a.drivers if e.pin.drive != "open-drain")
-        # one resistor for the line: sized for the strongest driver, and in every one's
-        # path (a weaker driver's edge slows through it: its checks say so)
-        most = (f", the strongest of the line's {n} drivers, each of which drives "
-                "through this one resistor") if n > 1 else ""
+        push = [e.label for e in a.drivers if e.pin.drive != "open-drain"]
+        # the model puts a resistor of this value at each driver's own pin (CIPO: one
+        # per peripheral), sized for the strongest; a weaker driver's edge slows through
+        # its own (its checks say so)
+        names = (", ".join(push) if len(push) <= _DRIVERS_NAMED
+                 else f"{push[0]}, …, {push[-1]}")
+        most = (f", the strongest of the line's {len(push)} drivers: fit one resistor of "
+                f"this value at each driver's output ({names})") if len(push) > 1 else ""
         return (f"; r_out: {d.label}{corner}, the mean of its driver model's rise "
                 f"{_fmt(at.r_rise, 'Ω')} and fall {_fmt(at.r_fall, 'Ω')}{most}")
     return ""
