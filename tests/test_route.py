@@ -456,8 +456,12 @@ def test_the_stretches_without_a_delay_are_named(tmp_path):
   { from = "T", to = "TP1", length = "0 cm", geometry = "g" },
 ] }
 """, tmp_path)
-    assert ("a section without a delay (T–U2, T–TP1) counts as a lumped capacitance half "
-            "at each of its two points") in _line(bus, "sclk").notes
+    notes = _line(bus, "sclk").notes
+    assert ("a section without a delay (T–U2) counts as a lumped capacitance half "
+            "at each of its two points") in notes
+    # a stretch of 0 length is a point (docs/formats/design.md), no capacitance
+    assert ("a section of 0 length (T–TP1) is a point, without capacitance: its two "
+            "points are one") in notes
 
 
 def test_the_point_of_the_extra_capacitance_is_named(tmp_path):
@@ -939,7 +943,9 @@ def test_a_stub_far_shorter_than_the_ramp_is_lumped_and_says_so(tmp_path):
     tiny, point = sclk_of("1 µm"), sclk_of("0 cm")
     note = next(n for n in tiny.notes if n.startswith("T1–U2 (1 µm"))
     assert "lumped capacitance, half at each of its two points" in note
-    assert any("lumped capacitance half at each of its two points" in n for n in point.notes)
+    # a stretch of 0 length is a point (docs/formats/design.md), not a capacitance
+    assert "a section of 0 length (T1–U2) is a point, without capacitance: its two points " \
+        "are one" in point.notes
     # a point and a 1 µm stub: the same edges but for the stub's 0.1 fF (common practice,
     # no source: the capacitance of 1 µm of trace is negligible against picofarads of pins)
     for name in ("edge_rise_time", "edge_fall_time", "overshoot", "undershoot"):

@@ -24,9 +24,10 @@ How a line is built
   or stripline, the geometry's ``method`` or the default); per-length values give
   ``Z0 = delay / capacitance``; a cable class gives its capacitance, delay and
   impedance.  A section with a capacitance but no delay counts as a lumped
-  capacitance at the far end.
+  capacitance at the far end; one of 0 length is a point.
 * **Model.**  A line is electrically long (``transmission_line``) when its one-way
-  delay exceeds one sixth of the 10–90 % edge the driver makes into the pins alone
+  delay exceeds one sixth of the 10–90 % edge the driver makes into the pins and the
+  line's ``extra_capacitance`` alone, without the trace
   (:data:`LONG_LINE_RULE`); the ratio is reported so that users can apply another
   rule.  A long line is solved as a chain of lossless lines
   (:func:`pinlib.physics.waveform.distributed_response`).  A short one is solved as
@@ -44,12 +45,16 @@ How a line is built
 * **Series termination.**  ``series_resistor = "auto"``: none when the line is
   electrically short and passes the overshoot, undershoot and ringing checks without
   one (what a series resistor cures; the choice so does not depend on the clock);
-  otherwise ``Rs = Z0 - r_out`` (Z0 of the first section, ``r_out`` the mean of the driver's
-  rise and fall resistance; on CIPO the strongest driver's) rounded to the nearest
+  otherwise ``Rs = Z0 - r_out`` (Z0 of the stretch at the driver,
+  :attr:`LineAnalysis.z0`, whichever order the file writes the stretches in; ``r_out``
+  the mean of the driver's rise and fall resistance; on CIPO the strongest driver's, a
+  resistor of that value then sitting at each peripheral's pin) rounded to the nearest
   E24 value (by ratio), and the line evaluated again.  Where the sections differ in
-  Z0 (a short trace into a cable) the match of each section's Z0 is tried and the one
-  that leaves the least overshoot and undershoot kept: a short first section hides
-  behind the next, and matching it alone can leave the rest undamped.  The check
+  Z0 (a short trace into a cable) the match of each other section's Z0 is tried and
+  kept only where it brings the overshoot, undershoot and ringing checks to a better
+  standing (fewer failing, then fewer warning): a short first section hides behind
+  the next, and matching it alone can leave the rest ringing, but a few millivolts less
+  overshoot do not outweigh the slower edge of a larger resistor.  The check
   ``series-termination`` holds the edge, overshoot and undershoot with and without it.
 
 Checks on each line: ``overshoot`` and ``undershoot`` against each pin's ``abs_max``

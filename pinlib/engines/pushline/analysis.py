@@ -44,11 +44,15 @@ class LineAnalysis:
     rs : float
         Series resistor used. [Ω]
     rs_ideal : float or None
-        ``Z0 - r_out`` when "auto" considered it. [Ω]
+        ``Z0 - r_out`` when "auto" considered it, of the Z0 it matched. [Ω]
+    z0_matched : float or None
+        The Z0 "auto" matched when it chose a resistor: :attr:`z0` (the stretch at the
+        driver) unless another section's match brought a check to a better standing. [Ω]
     long : bool
         Electrically long by :data:`LONG_LINE_RULE`. [1]
     ratio : float
-        One-way delay over the driver's edge into the pins alone. [1]
+        One-way delay over the driver's edge into the pins and extra capacitance alone
+        (without the trace). [1]
     edge_alone : float
         That edge. [s]
     models : dict
@@ -70,6 +74,7 @@ class LineAnalysis:
     unterminated: dict | None = None
     rs: float = 0.0
     rs_ideal: float | None = None
+    z0_matched: float | None = None
     long: bool = False
     ratio: float = 0.0
     edge_alone: float = 0.0
@@ -92,10 +97,34 @@ class LineAnalysis:
 
     @property
     def z0(self) -> float:
-        for s in self.stretches:  # the first section with a delay (read often: a loop)
+        """The line's Z0: of the stretch at the driver (:meth:`z0_at`), on a line of
+        several drivers (CIPO) the strongest push-pull driver's, the one "auto" matches
+        (:meth:`matched_driver`); NaN where no stretch has a delay. [Ω]"""
+        d = self.matched_driver()
+        return self.z0_at(d.ref if d is not None else None)
+
+    def z0_at(self, ref: str | None) -> float:
+        """Z0 of the stretch at driver ``ref``'s point: on a route the first stretch with
+        a delay on the way to the point farthest from it
+        (:meth:`~pinlib.engines.pushline.routes.RouteNet.section_at`), whichever order
+        the route is written in; on a chain of sections (which starts at the driver)
+        the first with a delay. NaN where no stretch has a delay. [Ω]"""
+        if self.net is not None and ref is not None:
+            s = self.net.section_at(self.net.node(ref))
+            return s.z0 if s is not None else math.nan
+        for s in self.stretches:
             if s.td > 0:
                 return s.z0
         return math.nan
+
+    def matched_driver(self) -> Endpoint | None:
+        """The driver whose resistance "auto" matches: the strongest push-pull driver
+        (the least :func:`matched_resistance`; of equals the first of the line's), or the
+        line's first driver where none is push-pull or their models are not made yet."""
+        push = [d for d in self.drivers if d.pin.drive != "open-drain"]
+        if push and all(d.ref in self.models for d in push):
+            return min(push, key=lambda d: matched_resistance(self.models[d.ref]))
+        return self.drivers[0] if self.drivers else None
 
     def without_series(self, ref: str) -> DriveCase | None:
         """The case of driver ``ref`` without the line's series resistor, solved on
@@ -117,6 +146,13 @@ class LineAnalysis:
             kept = _case(self, case.driver, 0.0)
         self.unterminated = {**(self.unterminated or {}), ref: kept}
         return kept
+
+
+def matched_resistance(m) -> float:
+    """The resistance "auto" matches of one push-pull driver's model: the mean of rise
+    and fall, at its fast corner where its part states one (the corner that rings). [Ω]"""
+    m = m.fast if m.fast is not None else m
+    return 0.5 * (m.r_rise + m.r_fall)
 
 
 def _others(pins: Sequence[Endpoint], driver: Endpoint) -> list[Endpoint]:

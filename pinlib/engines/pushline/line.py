@@ -234,14 +234,7 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
     if not a.drivers:
         raise DesignError(M.NO_DRIVER_ON_LINE, field=f"lines.{signal}",
                           hint="a push-pull or open-drain pin must sit on the line")
-    if any(not s.td > 0 for s in stretches) and stretches:
-        # on a route (or a chain of sections) the note names which: one stretch of many
-        # given a capacitance without its delay, or a stretch of 0 length
-        which = [("–".join(line.route[i]) if line.route else f"section {i + 1}")
-                 for i, s in enumerate(stretches) if not s.td > 0]
-        named = f" ({', '.join(which)})" if len(stretches) > 1 else ""
-        notes.append(f"a section without a delay{named} counts as a lumped capacitance "
-                     + ("half at each of its two points" if net else "at the far end"))
+    _no_delay_notes(line, stretches, net is not None, notes)
     pullup = _driver_models(a, res)
     _lumped_note(a, notes)
     _open_stub_note(a, notes)
@@ -268,6 +261,28 @@ def _analyse(signal, line, drivers, loads, receivers, res, clock, clock_line, wa
     _add_checks(a, res, clock, clock_line, warn_margin, pullup)
     _add_figures(a, res)
     return a
+
+
+def _no_delay_notes(line: Line, stretches, routed: bool, notes: list) -> None:
+    """Notes on the sections without a delay: one given a capacitance without its delay
+    counts as a lumped capacitance; one of 0 length is a point (no capacitance: on a
+    route its two points are one).  On a route (or a chain of sections) the notes name
+    which."""
+    def name(i):
+        return "–".join(line.route[i]) if line.route else f"section {i + 1}"
+
+    def named(idx):
+        return f" ({', '.join(name(i) for i in idx)})" if len(stretches) > 1 else ""
+
+    lumped = [i for i, s in enumerate(stretches) if not s.td > 0 and s.length > 0]
+    points = [i for i, s in enumerate(stretches) if not s.td > 0 and not s.length > 0]
+    if lumped:
+        notes.append(f"a section without a delay{named(lumped)} counts as a lumped "
+                     "capacitance " + ("half at each of its two points" if routed
+                                       else "at the far end"))
+    if points:
+        notes.append(f"a section of 0 length{named(points)} is a point, without "
+                     "capacitance" + (": its two points are one" if routed else ""))
 
 
 def _trace_models_note(a: LineAnalysis, notes: list) -> None:
@@ -500,8 +515,12 @@ def _electrical_length(a: LineAnalysis, notes: list) -> None:
                                  td=a.delay if a.net is not None else None)
     # of several drivers (CIPO, a shared GPIO line) the one whose edge is the fastest
     whose = (f"{a.drivers[fastest].label}'s" if len(a.drivers) > 1 else "the driver's")
+    # the edge into the lumped loads without the trace: the line's extra capacitance is
+    # one of them (_alone_of)
+    into = ("the pins and extra capacitance alone" if a.line.extra_capacitance > 0
+            else "the pins alone")
     notes.append(f"one-way delay {_fmt(a.delay, 's')} is {a.ratio:.2f} of {whose} "
-                 f"{_fmt(a.edge_alone, 's')} edge into the pins alone: electrically "
+                 f"{_fmt(a.edge_alone, 's')} edge into {into}: electrically "
                  + ("long, beyond" if a.long else "short, within")
                  + f" 1/6 of the edge ({LONG_LINE_SOURCE})")
 
@@ -513,7 +532,8 @@ def alone_inputs(a: LineAnalysis) -> list[tuple[float, float, float]]:
 
 
 def _alone_of(a: LineAnalysis, d) -> list[tuple[float, float, float]]:
-    """``(r, t_ramp, c_pins)`` of each edge of driver ``d`` into the line's pins alone."""
+    """``(r, t_ramp, c_pins)`` of each edge of driver ``d`` into the line's pins and extra
+    capacitance alone (without the trace)."""
     out = []
     # every pin's capacitance once; each driver's load is all of them but its own
     c_in = {id(p.device): p.c_in for p in a.loads}

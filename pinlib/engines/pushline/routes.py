@@ -99,6 +99,31 @@ class RouteNet:
         end, _ = self.farthest_node(0)
         return max(self.delays_from(end))
 
+    def section_at(self, start: int) -> Stretch | None:
+        """The stretch an edge launched at node ``start`` meets first: the first with a
+        delay on the way from ``start`` to the point farthest from it in delay (stretches
+        without a delay on the way are crossed: a point, or a lumped capacitance), so the
+        same whichever order the route is written in; of points equally far, the way
+        whose first such stretch has the lowest Z0.  None when no stretch has a delay."""
+        adj: dict[int, list[tuple[int, Stretch]]] = {i: [] for i in range(len(self.names))}
+        for a, b, s in self.sections:
+            adj[a].append((b, s))
+            adj[b].append((a, s))
+        first: dict[int, Stretch | None] = {start: None}  # by node: the way's first
+        delay = {start: 0.0}
+        todo = [start]
+        while todo:  # a walk of the tree: each node once
+            n = todo.pop()
+            for m, s in adj[n]:
+                if m not in first:
+                    first[m] = first[n] if first[n] is not None or not s.td > 0 else s
+                    delay[m] = delay[n] + s.td
+                    todo.append(m)
+        top = max(delay.values())
+        ways = [first[n] for n, d in delay.items()
+                if d >= top * (1 - 1e-9) and first[n] is not None]
+        return min(ways, key=lambda s: s.z0, default=None)
+
     def farthest_delay(self, nodes: Sequence[int]) -> float:
         """The longest one-way delay from any of ``nodes`` to any point (the diameter for
         none). [s]

@@ -100,8 +100,8 @@ def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
     over, under = max(above, 0.0), max(dip, 0.0)
     low_allowed = min(allowed, UNDERSHOOT_DEFAULT)
     corner = " (fast corner)" if fast[own].any() else ""
-    # with several drivers (CIPO's peripherals) the one whose edge it is: where a series
-    # resistor would go
+    # on a line of several drivers (CIPO's peripherals) the one whose edge it is, named
+    # even at a pin only one other drives: where a series resistor would go
     mask = np.ones(len(refs), dtype=bool) if isinstance(own, slice) else own
     mine = [r for r, keep in zip(refs, mask, strict=True) if keep]
     fix = None
@@ -113,7 +113,7 @@ def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
                "help; shift the level (a level translator, a divider) or use a receiver "
                "rated for it")
     by_peak = by_dip = ""
-    if len(mine) > 1:
+    if len(refs) > 1:
         by_peak = f" while {mine[int(np.argmax(peaks[own]))]} drives"
         by_dip = f" while {mine[int(np.argmax(dips[own]))]} drives"
     return [
@@ -170,7 +170,7 @@ def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
     total = sum(e for e, _ in counts.values())
     # with several drivers (CIPO's peripherals) the one whose edges ring most: where the
     # series resistor goes
-    whose = max(by_driver, key=by_driver.get) if len(by_driver) > 1 and total else None
+    whose = max(by_driver, key=by_driver.get) if len(cases) > 1 and total else None
     if total == 0:
         status = "pass"
     else:
@@ -321,7 +321,7 @@ def _transition_check(rx: Endpoint, cases: dict, routed: bool, warn: float,
                "with a Schmitt-trigger input" if drv is not None and drv.pin.drive == "open-drain"
                else "a stronger driver or less load speeds the edge (a series resistor "
                     "slows it), or a receiver with a Schmitt-trigger input")
-    many = sum(ref != rx.ref for ref in cases) > 1
+    many = len(cases) > 1
     return check_max(
         "input-transition", edge, limit, "s", rx.source("t_transition_max"),
         f"slowest 10-90 % edge {_fmt(edge, 's')} at {rx.label}"

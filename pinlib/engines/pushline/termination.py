@@ -9,7 +9,13 @@ import numpy as np
 
 from pinlib.core import eseries
 from pinlib.engines import memo
-from pinlib.engines.pushline.analysis import LineAnalysis, _cases, _figures_of, _fmt
+from pinlib.engines.pushline.analysis import (
+    LineAnalysis,
+    _cases,
+    _figures_of,
+    _fmt,
+    matched_resistance,
+)
 from pinlib.engines.pushline.rules import _TERMINATION_CURES, TERMINATION_RULE
 from pinlib.engines.pushline.sichecks import _si_checks
 from pinlib.engines.readout import explained
@@ -76,10 +82,10 @@ def _solve_cases(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
 def _auto_series(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
                  notes: list) -> None:
     """``series_resistor = "auto"``: none on a short line that passes what a series
-    resistor cures, else ``Z0 - r_out`` to the nearest E24 value.  A long line's cases
-    without the resistor only explain the choice (its check's comparison): a caller
-    reading summaries only (:func:`pinlib.engines.readout.summaries_only`) goes without
-    them."""
+    resistor cures, else ``Z0 - r_out`` to the nearest E24 value (Z0 of the stretch at
+    the driver, :attr:`LineAnalysis.z0`).  A long line's cases without the resistor only
+    explain the choice (its check's comparison): a caller reading summaries only
+    (:func:`pinlib.engines.readout.summaries_only`) goes without them."""
     bare = _cases(a, 0.0, pullup) if explained() or not a.long else None
     # Only what a series resistor can cure decides (a slow edge or a level it cannot),
     # so the choice does not depend on the clock; a long line is terminated whatever
@@ -96,11 +102,11 @@ def _auto_series(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
         notes.append(f"auto series resistor: none ({why})")
         return
     a.rs = chosen_series_resistor(a.z0, r_drv)
-    z0, why = a.z0, ""
     if a.rs > 0:
         a.unterminated = bare
         a.cases = _cases(a, a.rs, pullup)
-        z0, why = _best_match(a, r_drv, pullup)
+        z0, why = _best_match(a, r_drv, pullup, (clock, clock_line, warn_margin))
+        a.z0_matched = z0
         a.rs_ideal = z0 - r_drv
         notes.append(f"auto series resistor: {_fmt(a.rs, 'Ω')} (Z0 {_fmt(z0, 'Ω')} "
                      f"- r_out {_fmt(r_drv, 'Ω')} = {_fmt(a.rs_ideal, 'Ω')}, nearest "
@@ -111,40 +117,60 @@ def _auto_series(a: LineAnalysis, pullup: dict, clock, clock_line, warn_margin,
                      f"already matches or exceeds Z0 {_fmt(a.z0, 'Ω')})")
 
 
+#: Driver labels the note on a line of several drivers lists in full (beyond, the first
+#: and the last).
+_DRIVERS_NAMED = 4
+
+
 def _matched_words(a: LineAnalysis, r_drv: float) -> str:
     """Whose resistance "auto" matched and how it was made: the mean of a driver's
     fitted rise and fall (at its fast corner, ``pins.<name>.fast``, where its part states
     one), which differs from the pin's own ``r_out`` where the fit moved it."""
     for d in a.drivers:
         m = a.models[d.ref]
-        if d.pin.drive == "open-drain" or _matched(m) != r_drv:
+        if d.pin.drive == "open-drain" or matched_resistance(m) != r_drv:
             continue
         at = m.fast if m.fast is not None else m
         corner = " at its fast corner" if m.fast is not None else ""
-        n = sum(1 for e in a.drivers if e.pin.drive != "open-drain")
-        # one resistor for the line: sized for the strongest driver, and in every one's
-        # path (a weaker driver's edge slows through it: its checks say so)
-        most = (f", the strongest of the line's {n} drivers, each of which drives "
-                "through this one resistor") if n > 1 else ""
+        push = [e.label for e in a.drivers if e.pin.drive != "open-drain"]
+        # the model puts a resistor of this value at each driver's own pin (CIPO: one
+        # per peripheral), sized for the strongest; a weaker driver's edge slows through
+        # its own (its checks say so)
+        names = (", ".join(push) if len(push) <= _DRIVERS_NAMED
+                 else f"{push[0]}, …, {push[-1]}")
+        most = (f", the strongest of the line's {len(push)} drivers: fit one resistor of "
+                f"this value at each driver's output ({names})") if len(push) > 1 else ""
         return (f"; r_out: {d.label}{corner}, the mean of its driver model's rise "
                 f"{_fmt(at.r_rise, 'Ω')} and fall {_fmt(at.r_fall, 'Ω')}{most}")
     return ""
 
 
-def _swing(cases: dict, receivers) -> float:
-    """The worst overshoot or undershoot of ``cases`` over every pin. [V]"""
-    f = _figures_of(cases, receivers)
-    return max(f["overshoot"], f["undershoot"])
+def _standing(a: LineAnalysis, cases: dict, how: tuple) -> tuple[int, int]:
+    """How the checks a series resistor cures (overshoot, undershoot, ringing) stand with
+    ``cases``: ``(failing, warning)``; ``how`` is ``(clock, clock_line, warn_margin)``."""
+    got = [c.status for c in _si_checks(a, cases, *how) if c.id in _TERMINATION_CURES]
+    return got.count("fail"), got.count("warn")
 
 
-def _best_match(a: LineAnalysis, r_drv: float, pullup: dict) -> tuple[float, str]:
+def _standing_words(got: tuple[int, int]) -> str:
+    """``(failing, warning)`` as the note says it: ``all pass``, ``have 1 failing and 2
+    warning``."""
+    fail, warn = got
+    parts = [f"{n} {word}" for n, word in ((fail, "failing"), (warn, "warning")) if n]
+    return "have " + " and ".join(parts) if parts else "all pass"
+
+
+def _best_match(a: LineAnalysis, r_drv: float, pullup: dict,
+                how: tuple) -> tuple[float, str]:
     """On a line whose sections differ in impedance (a trace into a cable), the Z0 that
-    "auto" matches: of the resistors that match each section's Z0, the one that leaves
-    the least overshoot and undershoot (ties to the first section's, already in
-    ``a.cases``).  A short first section hides behind the next: the edge sees the
-    impedance of the longer line, and matching the first alone can leave the
-    reflection off the rest undamped.  Sets ``a.rs`` and ``a.cases`` to the choice and
-    returns its Z0 and words for the note (empty where the sections agree). [Ω]"""
+    "auto" matches: the driver's section (``a.rs`` and ``a.cases`` on entry), unless
+    the match of another section's Z0 brings the overshoot, undershoot and ringing
+    checks to a better standing (fewer failing, then fewer warning; of several, the
+    best standing, then the smallest resistor, which slows the edge least).  Only what
+    changes a check decides: a few millivolts less overshoot do not outweigh the slower
+    edge of a larger resistor.  Sets ``a.rs`` and ``a.cases`` to the choice and returns
+    its Z0 and words for the note (empty where the sections agree); ``how`` is
+    ``(clock, clock_line, warn_margin)``. [Ω]"""
     seen = {a.z0: a.rs}
     for s in a.stretches:
         if s.td > 0 and math.isfinite(s.z0) and s.z0 not in seen:
@@ -155,33 +181,41 @@ def _best_match(a: LineAnalysis, r_drv: float, pullup: dict) -> tuple[float, str
             tried[rs] = (z, _cases(a, rs, pullup))
     if len(tried) < 2:
         return a.z0, ""
-    swings = {rs: _swing(cases, a.receivers) for rs, (_, cases) in tried.items()}
+    stand = {rs: _standing(a, cases, how) for rs, (_, cases) in tried.items()}
     first = a.rs
-    best = min(swings, key=swings.get)
-    if swings[first] <= swings[best] + 1e-3:  # within a millivolt: the first's
-        return a.z0, ""
-    others = ", ".join(f"{_fmt(rs, 'Ω')} leaves {_fmt(swings[rs], 'V')}"
-                       for rs in tried if rs != best)
+    better = [rs for rs in tried if stand[rs] < stand[first]]
+    others = ", ".join(f"{_fmt(rs, 'Ω')} for {_fmt(z, 'Ω')}{_of(a, z)}"
+                       for rs, (z, _) in tried.items() if rs != first)
+    checks = "the overshoot, undershoot and ringing checks"
+    if not better:
+        if stand[first] == (0, 0):
+            return a.z0, (f"; the sections differ in Z0: the driver's section is matched, "
+                          f"as {checks} all pass with it (another section's match is taken "
+                          f"only to pass a check this one does not: {others})")
+        return a.z0, (f"; the sections differ in Z0: the driver's section is matched ("
+                      f"{checks} {_standing_words(stand[first])} with it, and no fewer "
+                      f"with {others})")
+    best = min(better, key=lambda rs: (stand[rs], rs))
     a.rs = best
     z0, a.cases = tried[best]
+    return z0, (f"; the sections differ in Z0: with the driver's section matched "
+                f"({_fmt(first, 'Ω')} for {_fmt(tried[first][0], 'Ω')}) {checks} "
+                f"{_standing_words(stand[first])}, with {_fmt(z0, 'Ω')}{_of(a, z0)} "
+                f"matched they {_standing_words(stand[best]).removeprefix('all ')}")
+
+
+def _of(a: LineAnalysis, z0: float) -> str:
+    """`` of LABEL``: what the first stretch of Z0 ``z0`` is (empty if none). [1]"""
     label = next((s.label for s in a.stretches if s.td > 0 and s.z0 == z0), "")
-    where = f" of {label}" if label else ""
-    return z0, (f"; the sections differ in Z0: matching {_fmt(z0, 'Ω')}{where} leaves the "
-                f"least overshoot/undershoot, {_fmt(swings[best], 'V')} ({others})")
-
-
-def _matched(m) -> float:
-    """The resistance "auto" matches of one push-pull driver's model: the mean of rise
-    and fall, at its fast corner where its part states one (the corner that rings). [Ω]"""
-    m = m.fast if m.fast is not None else m
-    return 0.5 * (m.r_rise + m.r_fall)
+    return f" of {label}" if label else ""
 
 
 def auto_ideal(a: LineAnalysis) -> tuple[float, float | None]:
     """The driver resistance "auto" matches (the strongest push-pull driver's mean of
     rise and fall, at its fast corner where its part states one: the corner that rings;
-    NaN with none) and ``Z0 - r_out`` (None when either is unknown). [Ω]"""
-    r_drv = min(_matched(a.models[d.ref]) for d in a.drivers
+    NaN with none) and ``Z0 - r_out`` (None when either is unknown), Z0 of the stretch at
+    that driver. [Ω]"""
+    r_drv = min(matched_resistance(a.models[d.ref]) for d in a.drivers
                 if d.pin.drive != "open-drain") \
         if any(d.pin.drive != "open-drain" for d in a.drivers) else math.nan
     return r_drv, (a.z0 - r_drv if math.isfinite(a.z0) and math.isfinite(r_drv) else None)
@@ -197,6 +231,9 @@ def _termination_check(a: LineAnalysis) -> Check:
     with_f = _figures_of(a.cases, a.receivers)
     details = {"rs_chosen": a.rs, "rs_ideal": a.rs_ideal, "z0": a.z0,
                "delay_to_edge_ratio": a.ratio, "with": with_f}
+    if a.z0_matched is not None and a.z0_matched != a.z0:
+        # another section's Z0 matched (_best_match): the Z0 rs_ideal is made from
+        details["z0_matched"] = a.z0_matched
     if a.unterminated is not None:
         details["without"] = _figures_of(a.unterminated, a.receivers)
     elif a.rs > 0:  # summaries only: the comparison was not worked out
