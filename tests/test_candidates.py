@@ -516,9 +516,10 @@ def test_the_worst_check_is_one_of_the_worst_status():
     r.add(Check("rise-time", "warn", 270e-9, 300e-9, "s", 0.05, "limit", "close"))
     dev = SimpleNamespace(is_bridge=False, ref="U2")
     bus = SimpleNamespace(protocol="i2c", segments=[])
-    status, margin, where, _, margins = _summary_of([r], [(bus, dev)])
+    status, margin, where, _, margins, code = _summary_of([r], [(bus, dev)])
     assert status == "warn" and where["id"] == "rise-time" and margin == 0.05
     assert margins == [0.0, 0.05]  # the ranked margins are all kept, smallest first
+    assert code == 1  # the worst check's own status: across buses it is what ranks
 
 
 def test_another_devices_rating_does_not_rank_the_candidates():
@@ -535,9 +536,10 @@ def test_another_devices_rating_does_not_rank_the_candidates():
     r.add(Check("supply-range", "pass", 3.3, 3.6, "V", 0.2, "rating", "U2", subject="U2"))
     r.add(Check("f-max", "warn", 1e6, 1.05e6, "Hz", 0.05, "rating", "U3", subject="U3"))
     bus = SimpleNamespace(protocol="spi", segments=[])
-    status, margin, where, _, margins = _summary_of(
+    status, margin, where, _, margins, code = _summary_of(
         [r], [(bus, SimpleNamespace(is_bridge=False, ref="U2"))])
     assert status == "warn"  # U3's rating still sets the status
+    assert code == 0  # the candidate's own worst check passes
     assert margins == [0.2] and where["subject"] == "U2"
     # on the demo's display position every candidate's worst was the controller's supply
     # range (+8.3 %); now it is each one's own

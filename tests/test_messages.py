@@ -2499,11 +2499,15 @@ def _(env):
 
 
 def _half_part(env):
-    # invented test input: an open-drain SDA pin alone, no SCL, no sink point
+    # invented test input: an open-drain SDA pin alone, no SCL (an I2C pin without a
+    # sink point is taken at the specification's: no warning), and an open-drain
+    # interrupt output without a sink point
     path = env.write("team/half.toml", 'format = "pinlib.part/1"\nid = "half"\n'
                      'title = "half"\ncategory = "sensor"\n'
                      'supply = { min = "1.7 V", max = "3.6 V" }\n[pins.sda]\n'
-                     'function = "i2c-sda"\ndrive = "open-drain"\nc_in = "5 pF"\n')
+                     'function = "i2c-sda"\ndrive = "open-drain"\nc_in = "5 pF"\n'
+                     '[pins.int]\nfunction = "gpio"\ndrive = "open-drain"\n'
+                     'c_in = "5 pF"\n')
     code = main(["parts", "check", str(path), "--json"])
     assert code == 0  # warnings: the part is valid
     return json.loads(env.capsys.readouterr().out)["warnings"]

@@ -380,8 +380,7 @@ PIN_SET_INCOMPLETE = ("pins of {protocols} ({have}) but no {lack} pin: the part 
                       "placed on such a bus")
 PIN_SET_RULE = "every device on such a bus to have {needs}"
 OPEN_DRAIN_NO_SINK_POINT = ("an open-drain pin without {missing}: its low level and sink "
-                            "current are checked against no rating of the part (an I2C "
-                            "or SMBus bus takes the specification's sink point instead)")
+                            "current are checked against no rating of the part")
 SINK_POINT_RULE = "v_ol and i_ol, the datasheet's low level at a sink current"
 IBIS_GIVE_I_OL = "--i-ol CURRENT reads v_ol from the model's [Pulldown] table at that current"
 # walk.py, notes of `parts check`: names that look like part files and are not read

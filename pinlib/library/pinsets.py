@@ -3,9 +3,10 @@
 - A pin table with some pins of a protocol but not every pin a device on such a bus
   needs (:attr:`pinlib.core.protocols.Protocol.device_needs`: SDA without SCL): the
   design loader refuses to place the part on that bus.
-- An open-drain pin without ``v_ol`` and ``i_ol``: its low level and sink current are
-  checked against no rating of the part (an I2C or SMBus bus takes the specification's
-  sink point in their place, and says so in its notes).
+- An open-drain pin without ``v_ol`` and ``i_ol`` (a GPIO's, an interrupt's): its low
+  level and sink current are checked against no rating of the part.  Not an I2C or
+  SMBus pin: its bus takes the specification's sink point for its rail and mode in
+  their place, and says so in its notes.
 
 ``pinlib parts check`` and ``pinlib parts import`` print them as warnings (the part is
 valid: ``parts check`` does not count them as problems).
@@ -16,10 +17,17 @@ from __future__ import annotations
 
 from pinlib.core import messages as M
 from pinlib.core.errors import LibraryError
-from pinlib.core.protocols import PROTOCOLS
+from pinlib.core.protocols import OPEN_DRAIN_PROTOCOLS, PROTOCOLS
 from pinlib.library.schema import Part
 
 __all__ = ["pin_set_warnings"]
+
+
+#: Pin functions whose bus takes the specification's sink point where the part states
+#: none (UM10204 table 9 for the bus's rail and mode; SMBus 3.1 table 4), and says so
+#: in its result: a pin without v_ol/i_ol is complete there (the built-in generic I2C
+#: target states none, as the specification's point depends on the rail).
+_SPEC_SINK = frozenset(fn for name in OPEN_DRAIN_PROTOCOLS for fn in PROTOCOLS[name].functions)
 
 
 def _needs() -> dict[tuple[str, ...], list[str]]:
@@ -62,6 +70,8 @@ def pin_set_warnings(part: Part, pf=None) -> list[LibraryError]:
                 **where(prefix + (have[present[0]],))))
         for name, pin in pins.items():
             if pin.drive != "open-drain" or (pin.v_ol is not None and pin.i_ol is not None):
+                continue
+            if pin.function in _SPEC_SINK:  # the specification's point, for its rail
                 continue
             missing = " and ".join(f for f in ("v_ol", "i_ol") if getattr(pin, f) is None)
             out.append(LibraryError(M.OPEN_DRAIN_NO_SINK_POINT.format(missing=missing),

@@ -439,8 +439,9 @@ def bus_text(row: dict) -> str:
 
 
 def _summary_of(results: list[BusResult], places) -> tuple:
-    """Status, worst margin, where it is, the figures and the ranked margins, from
-    engine results."""
+    """Status, worst margin, where it is, the figures, the ranked margins, and the status
+    code of the worst check (None without one: the status across buses is set by it,
+    not by a check the part cannot move), from engine results."""
     status = worst(r.status for r in results)
     best, where, margins, rank = None, None, [], None
     fixed, fixed_rank = None, -1  # the worst-status check the part cannot move
@@ -492,7 +493,7 @@ def _summary_of(results: list[BusResult], places) -> tuple:
         else:
             group, figs = r, bus_figures(bus.protocol)
         figures[r.id] = {n: FigureCell(_fig(group, n), u, _why(group, n)) for n, u in figs}
-    return status, best, where, figures, sorted(margins)
+    return status, best, where, figures, sorted(margins), None if rank is None else -rank[0]
 
 
 def where_text(wc: dict, multi: bool) -> str:
@@ -561,7 +562,7 @@ def _fig(group, name):
 
 
 def _candidate(part: Part, current: str, method: str, summary) -> Candidate:
-    status, m, where, figures, margins = summary
+    status, m, where, figures, margins, _ = summary
     return Candidate(part.id, part.title, part.category, status, m, where, figures,
                      part.id == current, method, margins=tuple(margins))
 
@@ -687,7 +688,7 @@ def _batch_summaries(bus: Bus, dev: Device, design: Design, ref: str, parts: lis
         else:
             m, w, ms, worst_code = None, None, [], None
         w = _with_status_by(w, worst_code, fixed[j], int(fixed_code[j]))
-        out.append((int(status[j]), m, w, figs, ms))
+        out.append((int(status[j]), m, w, figs, ms, worst_code))
     return out
 
 
@@ -807,8 +808,8 @@ class _Summaries:
             except PinlibError as err:
                 self.errors.setdefault(p.id, err)
                 continue
-            st, m, w, f, ms = _summary_of([res], [(bus, dev)])
-            self.per[p.id][bus.id] = (STATUSES.index(st), m, w, f[bus.id], ms)
+            st, m, w, f, ms, wc = _summary_of([res], [(bus, dev)])
+            self.per[p.id][bus.id] = (STATUSES.index(st), m, w, f[bus.id], ms, wc)
 
     def add_pp_buses(self, bar) -> None:
         """Every candidate on the push-pull buses, their edges solved in batches."""
@@ -820,8 +821,8 @@ class _Summaries:
                 self.errors.setdefault(p.id, got)
             else:
                 for r, pl in zip(got, sub, strict=True):
-                    st, m, w, f, ms = _summary_of([r], [pl])
-                    self.per[p.id][r.id] = (STATUSES.index(st), m, w, f[r.id], ms)
+                    st, m, w, f, ms, wc = _summary_of([r], [pl])
+                    self.per[p.id][r.id] = (STATUSES.index(st), m, w, f[r.id], ms, wc)
 
     def add_slow_buses(self, bar) -> None:
         """Every candidate on the buses evaluated one at a time, the design rebuilt with it."""
@@ -834,8 +835,8 @@ class _Summaries:
                 bar.update(len(self.slow_buses))
                 continue
             for r, pl in zip(results, sub, strict=True):
-                st, m, w, f, ms = _summary_of([r], [pl])
-                self.per[p.id][r.id] = (STATUSES.index(st), m, w, f[r.id], ms)
+                st, m, w, f, ms, wc = _summary_of([r], [pl])
+                self.per[p.id][r.id] = (STATUSES.index(st), m, w, f[r.id], ms, wc)
             bar.update(len(self.slow_buses))
 
     def candidate(self, p: Part, current: str) -> Candidate:
@@ -844,12 +845,14 @@ class _Summaries:
             return _failed(p, current, self.methods[p.id], self.errors[p.id])
         status, best, where, figures, margins, rank = 0, None, None, {}, [], None
         for bus, _ in self.places:
-            st, m, w, f, ms = self.per[p.id][bus.id]
+            st, m, w, f, ms, wc = self.per[p.id][bus.id]
             status = max(status, st)
-            # as on one bus: the worst status first, a relative margin before one in
+            # as on one bus: the worst check's own status first (not its bus's, which a
+            # check the part cannot move may set), a relative margin before one in
             # volts, a yes/no check (no margin) last
             yes_no = m is None and (w or {}).get("reason") == M.WORST_YES_NO
-            key = (-st, True, math.inf) if yes_no else (-st, bool(w and w.get("margin_unit")), m)
+            wc = st if wc is None else wc
+            key = (-wc, True, math.inf) if yes_no else (-wc, bool(w and w.get("margin_unit")), m)
             if (m is not None or yes_no) and (rank is None or key < rank):
                 rank, best, where = key, m, w
             elif where is None and w is not None and w.get("status_by"):
