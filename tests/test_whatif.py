@@ -726,7 +726,7 @@ def test_a_row_without_sensitivities_says_why(capsys, monkeypatch):
     assert part.sensitivity_text() == "the same margin on every board that has it"
     # the report's table says the same in its column
     rows = _mc_rows([steady, named])
-    assert [_mc_cells(r)[4] for r in rows] == ["the same margin on every board",
+    assert [_mc_cells(r)[5] for r in rows] == ["the same margin on every board",
                                                "rail 3.3 V -0.90"]
 
 
