@@ -642,7 +642,7 @@ def test_the_table_note_wraps_as_one_sentence():
     assert len(lines) > 2 and all(len(ln) <= 80 for ln in lines)
     # each line but the last as full as its next word allows, none ending a dozen
     # columns short (the line that ended "with the engine" held 62)
-    for line, after in zip(lines, lines[1:]):
+    for line, after in zip(lines, lines[1:], strict=False):
         first = glue(after.strip()).split(" ")[0]
         assert len(line) + 1 + len(first) > 80, (line, after)
         assert len(line) >= 68, lines
