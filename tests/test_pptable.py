@@ -517,11 +517,11 @@ def test_a_status_that_changes_makes_its_cell_rough_on_any_axis():
 
 
 @pytest.mark.parametrize("max_error, shown", [
-    (8.2e-5, "within 0.0082 percentage points of margin"),   # the demo's flash bus
-    (3.0e-3, "within 0.3 percentage points of margin"),
-    (1.5, "within 150 percentage points of margin"),
-    (1.0e-9, "within 0.001 percentage points of margin"),    # below it: at most that
-    (0.0, "within 0.001 percentage points of margin"),
+    (8.2e-5, "within ±0.0082 percentage points of margin"),   # the demo's flash bus
+    (3.0e-3, "within ±0.3 percentage points of margin"),
+    (1.5, "within ±150 percentage points of margin"),
+    (1.0e-9, "within ±0.001 percentage points of margin"),    # below it: at most that
+    (0.0, "within ±0.001 percentage points of margin"),
 ])
 def test_the_table_note_gives_its_agreement_without_an_exponent(max_error, shown):
     # reproducer: the Monte Carlo note read "agree with the engine within 8.2e-05 of
@@ -618,3 +618,31 @@ lines.reset = { length = "5 cm", capacitance = "1 pF/cm", delay = "60 ps/cm" }
     # one axis of a kind keeps its short name (the goldens' notes)
     grid.axes = axes[:1]
     assert "(supply factor 0.95–1.05)" in ppb._table_note(bus, grid)
+
+
+def test_the_table_note_wraps_as_one_sentence():
+    # reproducer: at 80 columns the note read "... at 20 boards drawn in the box they
+    # agree with the engine" and "within 0.047 percentage points ..." on the next line,
+    # 18 columns short, as if broken by hand: "within 0.047 percentage" was held together
+    # as one word (a word before a number is glued to it).  The numbers are those of an
+    # invented board's note (invented test data)
+    from types import SimpleNamespace
+
+    from pinlib.core.wrapping import NBSP, glue
+    from pinlib.present.report import fit
+
+    axes = [SimpleNamespace(kind="supply", lo=0.95, hi=1.05),
+            SimpleNamespace(kind="length", lo=0.95, hi=1.05)]
+    grid = SimpleNamespace(axes=axes, evaluations=173, max_error=4.7e-4,
+                           has_jumps=lambda: True)
+    note = ppb._table_note(SimpleNamespace(id="store"), grid)
+    assert "within ±0.047 percentage points of margin" in note
+    assert f"within{NBSP}" not in glue(note)   # a line may end after "within"
+    lines = fit(["  note: " + note], 80)
+    assert len(lines) > 2 and all(len(ln) <= 80 for ln in lines)
+    # each line but the last as full as its next word allows, none ending a dozen
+    # columns short (the line that ended "with the engine" held 62)
+    for line, after in zip(lines, lines[1:], strict=False):
+        first = glue(after.strip()).split(" ")[0]
+        assert len(line) + 1 + len(first) > 80, (line, after)
+        assert len(line) >= 68, lines

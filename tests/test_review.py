@@ -1366,7 +1366,8 @@ def test_the_markdown_monte_carlo_table_cites_each_source_by_number(tmp_path):
     head, body = rows[0], rows[1:]
     assert head.endswith("| Source |") and body
     assert all(re.search(r"\| \[\d+\] \|$", ln) for ln in body), body
-    assert max(len(ln) for ln in body) <= 160  # the numbers and the sensitivity text
+    # the numbers (the boards that warn among them) and the sensitivity text
+    assert max(len(ln) for ln in body) <= 170
     assert "- [1] " in section and "common practice" in section
     # every source written once
     sources = [ln for ln in section.splitlines() if re.match(r"- \[\d+\] ", ln)]
@@ -1442,3 +1443,51 @@ def test_a_closed_pull_up_window_is_captioned_as_closed():
                  "segment high"]
     assert closed.svg is not None and "inf" not in closed.svg
     assert "sink cannot carry the far side" in closed.svg
+
+
+def test_the_monte_carlo_tables_count_the_boards_that_warn(tmp_path, capsys):
+    # reproducer: the Monte Carlo table had no column for boards that warn (a CIPO
+    # first-bit check read 100.00 % beside a margin of -228.3 %, warning on every
+    # board), left out the yes/no ringing check that warned on 110 of 200 boards, and
+    # the section never said "warn".  tests/data (invented): its CIPO rings on some
+    # boards and passes on the others
+    pytest.importorskip("pinlib.studies.whatif")
+    from pinlib.studies import whatif
+
+    path = ROOT / "tests" / "data" / "spi-ringing-some-boards.toml"
+    design = load_design(path)
+    mc = whatif.monte_carlo(design, 40, seed=1, progress=False)
+    warned = [c for c in mc.checks if c.warns]
+    ringing = [c for c in warned if c.id == "ringing"]
+    assert ringing and all(0 < c.warns < 40 and c.margins is None for c in ringing)
+    out = tmp_path / "r.md"
+    main(["report", str(path), "--md", str(out), "--monte-carlo", "40", "--seed", "1"])
+    capsys.readouterr()
+    md = out.read_text(encoding="utf-8")
+    section = md[md.index("## Monte Carlo"):md.index("## Parts")]
+    assert "counts as passing it: the column of boards that warn" in " ".join(section.split())
+    assert "| Check | Pass fraction | Confidence interval | Boards that warn | Lowest margin |" \
+        in section
+    for c in warned:  # every check that warns, with how many of the boards
+        name = review._m(sampled_check_label(c.name, c.id))
+        lo, hi = c.passes.interval
+        assert f"| {name} | {c.passes.fraction:.2%} | {lo:.2%} to {hi:.2%} | {c.warns}/40 |" \
+            in section, name
+    # a check that neither varies, warns nor fails is not a row; one that varies and
+    # never warns reads 0 of the boards
+    quiet = [c for c in mc.checks if c.varies and not c.warns and not c.fails]
+    assert quiet
+    lo, hi = quiet[0].passes.interval
+    assert f"| {review._m(quiet[0].label)} | 100.00% | {lo:.2%} to {hi:.2%} | 0/40 |" \
+        in section
+    steady = [c for c in mc.checks if not (c.varies or c.warns or c.fails or c.absent)]
+    assert steady and all(f"| {review._m(c.label)} |" not in section for c in steady)
+    page = review.render_html(design, check_design(design), mc=mc)
+    part = page[page.index('<section id="monte-carlo"'):page.index('<section id="parts"')]
+    assert '<th scope="col">Boards that warn</th>' in part
+    for c in warned:
+        shown = html.escape(sampled_check_label(c.name, c.id))
+        row = re.search(rf'<tr( class="r-(?:warn|fail)")?><td>{re.escape(shown)}</td>.*?</tr>',
+                        part)
+        assert row and f'<td class="num">{c.warns}/40</td>' in row.group(0), shown
+        assert row.group(1), shown   # coloured as a warning, or a failure when it fails

@@ -33,6 +33,7 @@ from typing import Any
 
 import numpy as np
 
+from pinlib.core.labels import plural_s
 from pinlib.core.valueclass import value_class
 from pinlib.engines import pptable
 from pinlib.engines import pushpull as pp
@@ -282,7 +283,7 @@ def engine_note(bus_id: str, why: dict) -> str:
     beside its table, and why (``why``: counts by the keys of :data:`WHY`)."""
     total = sum(why.values())
     parts = ", ".join(f"{why[k]} {text}" for k, text in WHY.items() if why.get(k))
-    return f"bus {bus_id}: {total} boards evaluated by the engine ({parts})"
+    return f"bus {bus_id}: {total} board{plural_s(total)} evaluated by the engine ({parts})"
 
 
 def prepare_table(bus: Bus, design, nominal, tables: dict, span: float, floor: float,
@@ -341,9 +342,12 @@ def _table_note(bus: Bus, grid) -> str:
     # bound itself (never an exponent)
     points = max(float(grid.max_error) * 100.0, 0.001)
     points_text = f"{points:.2g}" if points < 10 else f"{points:.0f}"
+    # "±" before the number: a word before a number is held to it in wrapping
+    # (pinlib.core.wrapping), and "within 0.047 percentage" held as one word left a gap
+    # at the end of the line before it that read as a line break in mid-sentence
     return (f"bus {bus.id}: line results interpolated from {grid.evaluations} engine "
             f"evaluations over the tolerance box ({axes}); at {pptable.VERIFY} boards "
-            f"drawn in the box they agree with the engine within {points_text} percentage "
+            f"drawn in the box they agree with the engine within ±{points_text} percentage "
             "points "
             + ("of margin (boards outside the box, within three times that of failing, "
                "or where a line's results jump: evaluated by the engine)" if grid.has_jumps()

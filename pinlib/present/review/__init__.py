@@ -27,15 +27,17 @@ that the text stands alone.
 
 A Monte Carlo run (:func:`pinlib.studies.whatif.monte_carlo`) adds a section: the run's size,
 draws, seed and yields; a table of every sampled check whose margin varies over the
-boards (or that fails on some) with its pass fraction, confidence interval, lowest
-margin, the parameters it is most sensitive to and its source; and histograms of the
-per-board margins (a board passes when its margin is not negative) of the
-:data:`MC_CHARTS` checks with the lowest pass fractions and margins.  Other sources of
+boards (or that warns or fails on some) with its pass fraction (a warning passes),
+confidence interval, the boards on which it warns, lowest margin, the parameters it is
+most sensitive to and its source; and histograms of the per-board margins (a board
+passes when its margin is not negative) of the :data:`MC_CHARTS` checks with the
+lowest pass fractions and margins.  Other sources of
 samples may use a plain protocol instead: ``mc.checks`` (or ``mc`` itself) an iterable
 of entries (objects or dicts) with ``id``, ``samples`` (the checked value on each board,
 SI), ``limit``, ``unit``, and optionally ``path``, ``subject``, ``kind`` (``"max"``, the
 default, or ``"min"``), ``pass_fraction``, ``ci`` (``(low, high)``), ``label`` and
-``source``; ``mc.n`` and ``mc.seed`` are shown when present.
+``source``; ``mc.n`` and ``mc.seed`` are shown when present.  Such entries say nothing
+of warnings: their cell of boards that warn is empty.
 
 The package's modules, each importing only those before it: ``draw`` (a chart of the
 review, built and cleaned for inline use), ``charts`` (the charts of each bus),

@@ -12,7 +12,7 @@ from pinlib.core.labels import check_label, note_label
 from pinlib.core.quantity import format_si
 from pinlib.model.result import CAUTION, BusResult, Group
 from pinlib.present.review.draw import ReviewChart, _slug
-from pinlib.present.review.montecarlo import _MC_HEAD, _mc_cells, _mc_summary
+from pinlib.present.review.montecarlo import _MC_HEAD, MC_TABLE_INTRO, _mc_cells, _mc_summary
 from pinlib.present.review.parts import (
     _basis,
     _origin,
@@ -270,16 +270,18 @@ class _Html:
             self.w(f'<p class="meta">{_e(line)}</p>')
         rows = self.r.mc_entries
         if rows:
+            self.w(f'<p class="meta">{_e(MC_TABLE_INTRO)}</p>')
             self.w(_TABLE + "<caption>Checks whose margin varies over the boards, or that "
-                   "fail on some</caption><thead><tr>"
+                   "warn or fail on some</caption><thead><tr>"
                    + "".join(f'<th scope="col">{_e(x)}</th>' for x in _MC_HEAD)
                    + "</tr></thead><tbody>")
             for row in rows:
                 cells = _mc_cells(row)
-                cls = ' class="r-fail"' if row["failures"] else ""
+                cls = ' class="r-fail"' if row["failures"] else \
+                    ' class="r-warn"' if row.get("warns") else ""
                 self.w(f"<tr{cls}><td>{_e(cells[0])}</td>"
-                       + "".join(f'<td class="num">{_e(c)}</td>' for c in cells[1:4])
-                       + f"<td>{_e(cells[4])}</td><td class=\"src\">{_e(cells[5])}</td></tr>")
+                       + "".join(f'<td class="num">{_e(c)}</td>' for c in cells[1:5])
+                       + f"<td>{_e(cells[5])}</td><td class=\"src\">{_e(cells[6])}</td></tr>")
             self.w("</tbody></table></div>")
         if self.r.mc_charts:
             self.w(f'<p class="meta">Histograms of the {len(self.r.mc_charts)} checks with the '

@@ -15,7 +15,7 @@ from pinlib.core.wrapping import wrap
 from pinlib.model.result import CAUTION, BusResult, Group
 from pinlib.present.report import fit
 from pinlib.present.review.draw import ReviewChart
-from pinlib.present.review.montecarlo import _MC_HEAD, _mc_cells, _mc_summary
+from pinlib.present.review.montecarlo import _MC_HEAD, MC_TABLE_INTRO, _mc_cells, _mc_summary
 from pinlib.present.review.parts import (
     _basis,
     _origin,
@@ -300,6 +300,7 @@ class _Markdown:
         for line in _mc_summary(self.r.mc):
             self.w(*_wrapped(_mt(line)), "")
         if self.r.mc_entries:
+            self.w(*_wrapped(_mt(MC_TABLE_INTRO)), "")
             # the numbers in the table, each limit's source once under it, cited by
             # number (a row that carried its own in full was up to 300 characters)
             cite: dict[str, int] = {}

@@ -4,7 +4,7 @@ run's summary sentences and the histograms of the checks with the lowest pass fr
 
 from __future__ import annotations
 
-from pinlib.core.labels import check_label, sampled_check_label
+from pinlib.core.labels import check_label, plural_s, sampled_check_label
 from pinlib.core.quantity import format_si
 from pinlib.model.result import margin_order, signed_margin_text
 from pinlib.present.review.draw import _draw
@@ -60,7 +60,7 @@ def _mc_rows(mc) -> list[dict]:
                 "count": f"{passes.passes}/{passes.n}",
                 "varies": bool(_get(entry, "varies", True)),
                 "failures": passes.passes < passes.n, "lowest": lowest,
-                "warns": _get(entry, "warns", 0) or 0,
+                "warns": _get(entry, "warns", 0) or 0, "n": passes.n,
                 "absent": _get(entry, "absent", 0) or 0,
                 "sensitivity": list(_get(entry, "sensitivity", []) or [])[:3],
                 "sensitivity_text": entry.sensitivity_text()
@@ -102,7 +102,10 @@ def _mc_charts(mc, keys) -> tuple[list, list]:
     from pinlib.present import charts as ch
 
     rows = _mc_rows(mc)
-    shown = [r for r in rows if r["varies"] or r["failures"] or r.get("absent")]
+    # a check that warns on some board is in the table too, whatever its margin does
+    # (a yes/no ringing check has none to vary)
+    shown = [r for r in rows
+             if r["varies"] or r["failures"] or r.get("absent") or r.get("warns")]
 
     def order(r):  # as the text's rows: fewest passing, most warning, lowest margin
         frac = r["fraction"] if r["fraction"] is not None else 1.0
@@ -140,7 +143,7 @@ def _mc_summary(mc) -> list[str]:
     n, seed = _get(mc, "n"), _get(mc, "seed")
     bits = []
     if n is not None:
-        bits.append(f"{int(n)} sampled boards")
+        bits.append(f"{int(n)} sampled board{plural_s(int(n))}")
     dist = _get(mc, "distribution")
     if dist:
         bits.append(f"{dist} within each tolerance" + (" (tolerance = 3σ)" if dist == "normal"
@@ -179,8 +182,23 @@ def _mc_cells(row: dict) -> list[str]:
     sens = (row.get("sensitivity_text")
             or ", ".join(f"{n} {c:+.2f}" for n, c in row["sensitivity"])
             or "not fitted: the entry gives no parameter draws")
-    return [row["where"], frac, ci, low, sens, row["source"]]
+    return [row["where"], frac, ci, _warn_cell(row), low, sens, row["source"]]
 
 
-_MC_HEAD = ("Check", "Pass fraction", "Confidence interval", "Lowest margin",
-            "Most sensitive to (standardized coefficient)", "Source of the limit")
+def _warn_cell(row: dict) -> str:
+    """The boards on which a check warns, of all (a warning passes: the pass fraction
+    counts them); empty where the samples say nothing of warnings (plain protocol)."""
+    if "n" not in row:
+        return ""
+    return f"{row.get('warns', 0)}/{row['n']}"
+
+
+_MC_HEAD = ("Check", "Pass fraction", "Confidence interval", "Boards that warn",
+            "Lowest margin", "Most sensitive to (standardized coefficient)",
+            "Source of the limit")
+
+#: The sentence above the Monte Carlo table of the review: which checks it holds, and
+#: that a warning passes.
+MC_TABLE_INTRO = ("The table lists every sampled check whose margin varies over the boards "
+                  "or that warns or fails on some board. A board on which a check warns "
+                  "counts as passing it: the column of boards that warn says on how many it does.")

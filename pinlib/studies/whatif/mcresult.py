@@ -7,7 +7,7 @@ from dataclasses import field
 
 import numpy as np
 
-from pinlib.core.labels import counted, sampled_check_label
+from pinlib.core.labels import counted, plural_s, sampled_check_label
 from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
 from pinlib.model.result import json_number, margin_order, signed_margin_text
@@ -207,7 +207,8 @@ class McResult:
         """The run for people: yields, then the checks with the fewest passing boards
         and lowest margins (``limit`` of them; None for all)."""
         pct = format_si(self.confidence, '%')
-        lines = [f"Monte Carlo: {self.n} boards, {self.distribution} within each tolerance"
+        lines = [f"Monte Carlo: {self.n} board{plural_s(self.n)}, {self.distribution} within "
+                 "each tolerance"
                  f"{' (tolerance = 3σ)' if self.distribution == 'normal' else ''}, seed "
                  f"{self.seed}; pass fractions with {pct} {self.method}s"]
         if self.parameters:
@@ -219,8 +220,11 @@ class McResult:
             lines.append(f"  all sampled buses pass on {_pct(self.board)}")
         for bus, y in self.buses.items():  # a coupling's id holds "<-"
             lines.append(f"  {'coupling' if '<-' in bus else 'bus'} {bus}: {_pct(y)}")
+        # a check that warns on some board is a row, whatever its margin does: it must
+        # never be counted among those that pass on every board (a yes/no ringing check
+        # has no margin to vary and warns on half the boards)
         rows = [c for c in self.checks
-                if c.varies or c.passes.passes < c.passes.n or c.absent]
+                if c.varies or c.passes.passes < c.passes.n or c.absent or c.warns]
         # the fewest passing boards, then the most boards that warn (a margin in a unit
         # sorts after every fraction: a warning slack in seconds must not fall among the
         # "more" below rows that never warn), then the lowest margin
@@ -246,11 +250,24 @@ class McResult:
                              f"{warned}{sens}")
             if len(shown) < len(rows):
                 more = len(rows) - len(shown)
-                lines.append(f"    … {more} more that {'varies' if more == 1 else 'vary'} "
-                             "(JSON lists every check)")
+                lines.append(f"    … {more} more that "
+                             f"{'varies, warns' if more == 1 else 'vary, warn'} or "
+                             f"{'fails' if more == 1 else 'fail'} (JSON lists every check)")
+                # every check that warns on some board is named, with how many: those of
+                # the "more" too
+                hidden = [c for c in rows[len(shown):] if c.warns]
+                if hidden:
+                    one = len(hidden) == 1
+                    lines.append(f"    of those, {len(hidden)} warn{'s' if one else ''} on "
+                                 "some boards (boards that warn): " + ", ".join(
+                                     f"{c.label} ({c.warns})" for c in hidden))
         steady = len(self.checks) - len(rows)
         if steady:
-            lines.append(f"  {steady} other checks pass on every board with the same margin")
+            one = steady == 1  # no warning, no failure and one margin on every board
+            lines.append(f"  {steady} other check{plural_s(steady)} "
+                         f"{'passes' if one else 'pass'} on every board, never "
+                         f"{'warns' if one else 'warn'} and never "
+                         f"{'varies' if one else 'vary'}")
         for n in self.notes:
             lines.append(f"  note: {n}")
         return "\n".join(lines) + "\n"
