@@ -3438,6 +3438,167 @@ def _(env):
     return " ".join(_assumed_cs(env)["notes"])
 
 
+# ---------------------------------------------------------------- the fix of a check
+# The designs and parts are invented test data (tests/fixdesigns.py); the numbers in the
+# expected texts are the engine's, which tests/test_fixes.py derives from each check's
+# own values and confirms by running the design with the fix applied.
+def _fix_of(env, body: str, check_id: str, extra: str = "", subject: str | None = None) -> str:
+    """The ``fix`` of the first failing or warning ``check_id`` (of ``subject``, where
+    given) in the JSON of ``pinlib check`` on a design of ``body``."""
+    from tests.fixdesigns import write_design
+
+    main(["check", str(write_design(env.tmp, body, extra)), "--json"])
+    doc = json.loads(env.capsys.readouterr().out)
+    found = [c for c in _checks_of(doc) if c["id"] == check_id and "fix" in c
+             and (subject is None or c.get("subject") == subject)]
+    assert found, f"no {check_id} check with a fix"
+    return found[0]["fix"]
+
+
+def _checks_of(node):
+    if isinstance(node, dict):
+        if {"id", "status", "source", "message"} <= set(node):
+            yield node
+        for v in node.values():
+            yield from _checks_of(v)
+    elif isinstance(node, list):
+        for v in node:
+            yield from _checks_of(v)
+
+
+def _gpio(line: str) -> str:
+    from tests.fixdesigns import GPIO_STRONG
+
+    return GPIO_STRONG.replace("{line}", line)
+
+
+def _open_drain(driver: str, line: str) -> str:
+    from tests.fixdesigns import GPIO_OPEN_DRAIN
+
+    return GPIO_OPEN_DRAIN.replace("{driver}", driver).replace("{line}", line)
+
+
+def _spi(name: str) -> str:
+    from tests import fixdesigns
+
+    return getattr(fixdesigns, name)
+
+
+_RTC_INT = 'part = "rtc-i2c", pin = "int"'
+
+
+@case("F_MAX_FIX", M.F_MAX_FIX.format(f_max="20 MHz", clock="25 MHz", ref="U3"))
+def _(env):
+    return _fix_of(env, _spi("SPI_FAST"), "f-max")
+
+
+@case("TIMING_CLOCK_FIX", M.TIMING_CLOCK_FIX.format(clock="11.1 MHz"))
+def _(env):
+    return _fix_of(env, _spi("SPI_SLOW"), "sclk-high")
+
+
+@case("TIMING_COPI_SETUP_ALT", M.TIMING_COPI_SETUP_ALT.format(ref="U2", t_valid="8 ns",
+                                                              copi="73.2 ps"))
+def _(env):
+    return _fix_of(env, _spi("SPI_SLOW"), "copi-setup")
+
+
+@case("TIMING_CIPO_SETUP_ALT", M.TIMING_CIPO_SETUP_ALT.format(ref="U2", sclk="216 ps",
+                                                              t_valid="15 ns", cipo="40.6 ps"))
+def _(env):
+    return _fix_of(env, _spi("SPI_BRIDGE"), "cipo-setup")
+
+
+@case("TIMING_BRIDGES_ALT", M.TIMING_BRIDGES_ALT.format(bridges="50 ns"))
+def _(env):
+    return _fix_of(env, _spi("SPI_BRIDGE"), "cipo-setup")
+
+
+@case("TIMING_CS_LEAD_FIX", M.TIMING_CS_LEAD_FIX.format(need="67.2 ns", lead="20 ns"))
+def _(env):
+    return _fix_of(env, _spi("SPI_SLOW"), "cs-setup")
+
+
+@case("TIMING_CS_LAG_FIX", M.TIMING_CS_LAG_FIX.format(need="67.2 ns", lag="20 ns"))
+def _(env):
+    return _fix_of(env, _spi("SPI_SLOW"), "cs-hold")
+
+
+@case("SWING_FIX_AUTO", M.SWING_FIX_AUTO.format(signal="x", rs="43 Ω"))
+def _(env):
+    return _fix_of(env, _gpio('{ length = "20 cm", geometry = "g" }'), "overshoot")
+
+
+@case("SWING_FIX_AUTO_SECTIONS", M.SWING_FIX_AUTO_SECTIONS.format(signal="x"))
+def _(env):
+    return _fix_of(env, _gpio('{ route = [{ from = "U1", to = "T1", length = "10 cm", '
+                              'geometry = "g" }, { from = "T1", to = "U2", length = "10 cm", '
+                              'geometry = "w" }] }'), "overshoot")
+
+
+@case("SWING_FIX_VALUE", M.SWING_FIX_VALUE.format(signal="x", rs="43 Ω"))
+def _(env):
+    return _fix_of(env, _gpio('{ length = "1 cm", geometry = "g", series_resistor = "auto" }'),
+                   "overshoot", 'warn_margin = "90 %"')
+
+
+@case("SWING_FIX_LARGER", M.SWING_FIX_LARGER.format(signal="x", rs="10 Ω"))
+def _(env):
+    return _fix_of(env, _gpio('{ length = "20 cm", geometry = "g", series_resistor = "10 Ω" }'),
+                   "overshoot")
+
+
+@case("SWING_FIX_MATCHED", M.SWING_FIX_MATCHED.format(r_out="120 Ω", z0="64.1 Ω"))
+def _(env):
+    return _fix_of(env, _spi("GPIO_WEAK_TREE"), "overshoot", 'warn_margin = "100 %"')
+
+
+@case("SWING_FIX_NO_SERIES")
+def _(env):
+    return _fix_of(env, _open_drain('part = "mcu-1v8", pin = "gpio_od"',
+                                    '{ length = "60 cm", geometry = "g", pullup = "470 Ω" }'),
+                   "overshoot", 'warn_margin = "100 %"')
+
+
+@case("EDGE_TIME_FIX", M.EDGE_TIME_FIX.format(clock="23.9 MHz"))
+def _(env):
+    return _fix_of(env, _spi("SPI_FAST"), "edge-time")
+
+
+@case("LEVEL_HIGH_FIX", M.LEVEL_HIGH_FIX.format(v_ih="2.18 V", v_oh="2.55 V"))
+def _(env):
+    return _fix_of(env, _gpio('{ length = "20 cm", geometry = "g" }'), "level-high")
+
+
+@case("LEVEL_HIGH_FIX_RECEIVER", M.LEVEL_HIGH_FIX_RECEIVER.format(v_ih="1.65 V"))
+def _(env):
+    return _fix_of(env, _spi("GPIO_WEAK_TREE"), "level-high", 'warn_margin = "100 %"')
+
+
+@case("LEVEL_HIGH_PULLUP_FIX", M.LEVEL_HIGH_PULLUP_FIX.format(v_high="1.19 V", v_oh="1.29 V"))
+def _(env):
+    return _fix_of(env, _open_drain(_RTC_INT, '{ length = "30 cm", geometry = "g", '
+                                              'pullup = "200 kΩ" }'), "level-high")
+
+
+@case("LEVEL_LOW_FIX", M.LEVEL_LOW_FIX.format(v_il="889 mV", v_ol="594 mV"))
+def _(env):
+    return _fix_of(env, _gpio('{ length = "20 cm", geometry = "g" }'), "level-low")
+
+
+@case("LEVEL_LOW_FIX_DRIVER", M.LEVEL_LOW_FIX_DRIVER.format(v_ol="65.9 mV"))
+def _(env):
+    return _fix_of(env, _gpio('{ length = "1 cm", geometry = "g", series_resistor = "auto" }'),
+                   "level-low", 'warn_margin = "90 %"')
+
+
+@case("LEVEL_LOW_SINK_FIX", M.LEVEL_LOW_SINK_FIX.format(signal="alarm", driver="U3.int",
+                                                        v_ol="567 mV"))
+def _(env):
+    return _fix_of(env, _open_drain(_RTC_INT, '{ length = "30 cm", geometry = "g", '
+                                              'pullup = "100 Ω" }'), "level-low")
+
+
 # ---------------------------------------------------------------- pinlib/studies/compare.py
 def _compare():
     from pinlib.studies import compare

@@ -596,6 +596,60 @@ CLOCK_ON_ASSUMED_CS = ("which rests on the {what} assumed for {ref} (half a cloc
                        "it records no {field}); {ref}'s {field} from its datasheet makes "
                        "the figure a full one")
 
+# The fix of a failing or warning check (Check.fix, printed after "fix:" on its line).
+# pinlib/engines/spi/evaluate.py: a part's f_max, and a timing term the clock moves
+F_MAX_FIX = ("lower the bus clock to {f_max} or less, or use a part rated for {clock} in "
+             "{ref}'s place")
+TIMING_CLOCK_FIX = "lower the bus clock to {clock} or less, where this check passes"
+# ...what else would give the term its time (appended to TIMING_CLOCK_FIX)
+TIMING_COPI_SETUP_ALT = ("; or less delay to {ref}: the controller's t_valid {t_valid} and "
+                         "COPI's flight {copi}")
+TIMING_CIPO_SETUP_ALT = ("; or a shorter round trip: SCLK out {sclk}, {ref}'s t_valid "
+                         "{t_valid}, CIPO back {cipo}")
+TIMING_BRIDGES_ALT = ", bridging parts {bridges}"
+# a term whose time the clock does not move: the controller's recorded CS lead or lag
+TIMING_CS_LEAD_FIX = ("the clock does not move this check: it passes with a CS lead of "
+                      "{need} or more from the controller (its t_cs_setup: {lead})")
+TIMING_CS_LAG_FIX = ("the clock does not move this check: it passes with a CS lag of {need} "
+                     "or more from the controller (its t_cs_hold: {lag})")
+# pinlib/engines/pushline/: overshoot and undershoot a series resistor may damp
+SWING_FIX_AUTO = ("set lines.{signal}.series_resistor = \"auto\": a source termination of "
+                  "Z0 - r_out ({rs}) damps the reflections (it slows the edges too: recheck "
+                  "the timing)")
+SWING_FIX_AUTO_SECTIONS = ("set lines.{signal}.series_resistor = \"auto\": a source "
+                           "termination of Z0 - r_out (of the section that damps best) "
+                           "damps the reflections (it slows the edges too: recheck the "
+                           "timing)")
+SWING_FIX_VALUE = ("a series resistor of about Z0 - r_out, {rs} "
+                   "(lines.{signal}.series_resistor = \"{rs}\"): \"auto\" fits none on a "
+                   "short line where no overshoot, undershoot or ringing check fails")
+SWING_FIX_LARGER = ("a series resistor above the line's {rs} "
+                    "(lines.{signal}.series_resistor; it slows the edges too, so recheck "
+                    "the timing), a driver with slower edges, or shorter stubs")
+SWING_FIX_MATCHED = ("a driver with slower edges, or a shorter line and stubs: the driver's "
+                     "{r_out} already matches Z0 {z0}, so a series resistor adds little")
+SWING_FIX_NO_SERIES = ("a shorter line and stubs, or a driver with slower edges (a series "
+                       "resistor needs a push-pull driver, and none drives this line)")
+# pinlib/engines/pushline/sichecks.py: the edge against a fraction of the clock period
+EDGE_TIME_FIX = ("lower the bus clock to {clock} or less, where this check passes, or "
+                 "speed the edge (a stronger driver, less load)")
+# pinlib/engines/pushline/sichecks.py: a driver's level against a receiver's threshold
+LEVEL_HIGH_FIX = ("a receiver whose VIH is at most {v_ih}, or a driver whose VOH is at least "
+                  "{v_oh}, where this check passes")
+# ...where no driver on its rail could give that VOH (it lies above the driver's supply)
+LEVEL_HIGH_FIX_RECEIVER = "a receiver whose VIH is at most {v_ih}, where this check passes"
+LEVEL_HIGH_PULLUP_FIX = ("the line rises only to {v_high} through its pull-up, and this check "
+                         "passes from {v_oh}: a smaller pull-up (the pins' leakage drops "
+                         "less across it), or one to a higher rail that every pin on the "
+                         "line is rated for")
+LEVEL_LOW_FIX = ("a receiver whose VIL is at least {v_il}, or a driver whose VOL is at most "
+                 "{v_ol}, where this check passes")
+# ...where no receiver on its rail could have that VIL (it lies above the receiver's supply)
+LEVEL_LOW_FIX_DRIVER = "a driver whose VOL is at most {v_ol}, where this check passes"
+LEVEL_LOW_SINK_FIX = ("a larger pull-up (lines.{signal}.pullup: less current for {driver}'s "
+                      "sink lowers its VOL), or a sink that holds the line at {v_ol} or "
+                      "less, where this check passes")
+
 # pinlib/engines/bench.py (a rise time measured on the board against the model)
 NO_SUCH_BUS = "no bus of that id in the design"
 BENCH_AGREES = "the measurement agrees with the model"

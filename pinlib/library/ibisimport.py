@@ -260,7 +260,7 @@ def import_part(library: loader.Library, ibis: IbisFile, component: str,
     path = write_new_part(library, new_id, folder / f"{new_id}.toml", text)
     if kw.get("warnings") is not None:  # what the part lacks to be of use on a bus
         pf = loader.PartFile(path, tomllib.loads(text), text, False)
-        for w in pin_set_warnings(part, pf):
+        for w in pin_set_warnings(part, pf, every_sink=True):
             sink = w.expected == M.SINK_POINT_RULE
             kw["warnings"].append((w.with_hint(M.IBIS_GIVE_I_OL) if sink else w).message)
     return path

@@ -40,10 +40,11 @@ def _needs() -> dict[tuple[str, ...], list[str]]:
     return out
 
 
-def pin_set_warnings(part: Part, pf=None) -> list[LibraryError]:
+def pin_set_warnings(part: Part, pf=None, *, every_sink: bool = False) -> list[LibraryError]:
     """The part's incomplete pin sets and open-drain pins without a sink point, each
     naming the part's file (``pf``, a :class:`~pinlib.library.loader.PartFile`), the
-    line and the field."""
+    line and the field.  ``every_sink``: an I2C/SMBus pin's too (an IBIS import, whose
+    model holds the sink the specification's point would stand in for)."""
     if part.abstract:
         return []
     out: list[LibraryError] = []
@@ -71,8 +72,8 @@ def pin_set_warnings(part: Part, pf=None) -> list[LibraryError]:
         for name, pin in pins.items():
             if pin.drive != "open-drain" or (pin.v_ol is not None and pin.i_ol is not None):
                 continue
-            if pin.function in _SPEC_SINK:  # the specification's point, for its rail
-                continue
+            if pin.function in _SPEC_SINK and not every_sink:  # its bus takes the
+                continue                                            # specification's
             missing = " and ".join(f for f in ("v_ol", "i_ol") if getattr(pin, f) is None)
             out.append(LibraryError(M.OPEN_DRAIN_NO_SINK_POINT.format(missing=missing),
                                     expected=M.SINK_POINT_RULE, **where(prefix + (name,))))

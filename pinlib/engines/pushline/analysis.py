@@ -183,6 +183,26 @@ def _fmt(x, unit):
     return format_si(x, unit) if explained() else UNSTATED
 
 
+def fmt_below(x: float, unit: str) -> str:
+    """A positive limit as :func:`_fmt` writes it, rounded down to the three digits shown:
+    a fix that names a clock passes at it (one rounded up could leave the check
+    short)."""
+    return _fmt_rounded(x, unit, math.floor)
+
+
+def fmt_above(x: float, unit: str) -> str:
+    """A positive need as :func:`_fmt` writes it, rounded up to the three digits shown
+    (a time a fix asks for at least)."""
+    return _fmt_rounded(x, unit, math.ceil)
+
+
+def _fmt_rounded(x: float, unit: str, rounding) -> str:
+    if not (math.isfinite(x) and x > 0):
+        return _fmt(x, unit)
+    step = 10.0 ** (math.floor(math.log10(x)) - 2)
+    return _fmt(rounding(x / step) * step, unit)
+
+
 def case_edge_times(c, receivers=()) -> tuple:
     """One driver's edge times as the line's figures read them (``edge_rise_time`` and
     ``edge_fall_time`` are the worst of these over the drivers): the slow corner's rise and

@@ -44,7 +44,7 @@ from pinlib.engines.pushline.rules import (
 from pinlib.engines.pushline.sections import line_model, stretches_of
 from pinlib.engines.pushline.sichecks import _si_checks
 from pinlib.engines.pushline.sink import sink_checks
-from pinlib.engines.pushline.termination import _solve_cases, _termination_check
+from pinlib.engines.pushline.termination import _solve_cases, _termination_check, swing_fix
 from pinlib.engines.pushline.waves import MAX_TIME_STEPS, _TooManySteps
 from pinlib.engines.readout import explained
 from pinlib.model.design import Line
@@ -564,7 +564,11 @@ def _add_checks(a: LineAnalysis, res: LineResult, clock, clock_line, warn_margin
                 pullup: dict) -> None:
     """The signal-integrity checks of the final cases, the line delay, the series
     termination "auto" chose, and a note for a waveform that had not settled."""
+    swing: list = []  # the line's one swing fix, worked out at the first check needing it
     for c in _si_checks(a, a.cases, clock, clock_line, warn_margin):
+        if c.id in ("overshoot", "undershoot") and c.status != "pass" and c.fix is None:
+            swing = swing or [swing_fix(a)]
+            c.fix = swing[0]
         res.add(c)
     if clock and a.delay > 0:
         res.add(rule_of_thumb(check_max(

@@ -7,8 +7,9 @@ import math
 
 import numpy as np
 
+from pinlib.core import messages as M
 from pinlib.core.labels import plural_s
-from pinlib.engines.pushline.analysis import LineAnalysis, _fmt, _others
+from pinlib.engines.pushline.analysis import LineAnalysis, _fmt, _others, fmt_above, fmt_below
 from pinlib.engines.pushline.drive import carried_pullup, net_leakage, open_drain_pullup
 from pinlib.engines.pushline.pins import Endpoint
 from pinlib.engines.pushline.rules import (
@@ -274,14 +275,31 @@ def _level_checks(a: LineAnalysis, rx: Endpoint, d: Endpoint, c, v_il: float, v_
                   warn: float, named: bool = False, advise: bool = True) -> list[Check]:
     """A driver's VOH/VOL against one receiver's VIH/VIL; ``named``: the line has more
     than one driver, and the subject names this one (``U3 from U1``); ``advise``: a
-    high level short of VIH across two rails says to shift the level."""
+    level short of its threshold across two rails has a fix (none behind a bridging
+    part, whose far side is not modelled)."""
     v_oh, oh_src, v_ol, ol_src, oh_how, ol_how = _driver_levels(d, c, a)
+    signal = a.signal
     subject = f"{rx.ref} from {d.ref}" if named else rx.ref
     fix = None
     if advise and v_oh < v_ih and rx.vdd > d.vdd:  # two domains: drive cannot mend it
         fix = (f"{d.label} on its {_fmt(d.vdd, 'V')} rail cannot reach the VIH of "
                f"{rx.label} on {_fmt(rx.vdd, 'V')}: shift the level (a level translator) "
                "or use a receiver whose VIH the output meets")
+    # behind a bridging part a level across two rails is the model's limit: no fix; the
+    # levels a fix names are those at which the check passes (outside the warning margin)
+    mend = advise or rx.vdd == d.vdd
+    if fix is None and mend and v_oh < v_ih * (1.0 + warn) and v_ih > 0:
+        fix = _level_high_fix(d, c, v_oh, v_ih, warn)
+    low_fix = None
+    if mend and v_ol > v_il * (1.0 - warn) and v_il > 0 and warn < 1:
+        vol = fmt_below(v_il * (1.0 - warn), "V")
+        vil = v_ol / (1.0 - warn)
+        if d.pin.drive == "open-drain":
+            low_fix = M.LEVEL_LOW_SINK_FIX.format(signal=signal, driver=d.label, v_ol=vol)
+        elif vil > rx.vdd:  # no input on the receiver's rail has such a VIL
+            low_fix = M.LEVEL_LOW_FIX_DRIVER.format(v_ol=vol)
+        else:
+            low_fix = M.LEVEL_LOW_FIX.format(v_il=fmt_above(vil, "V"), v_ol=vol)
     return [
         check_min(
             "level-high", v_oh, v_ih, "V", rx.source("v_ih"),
@@ -293,9 +311,23 @@ def _level_checks(a: LineAnalysis, rx: Endpoint, d: Endpoint, c, v_il: float, v_
             "level-low", v_ol, v_il, "V", rx.source("v_il"),
             f"{d.label} VOL {_fmt(v_ol, 'V')}{ol_how} against {rx.label} VIL "
             f"{_fmt(v_il, 'V')}",
-            warn_margin=warn, subject=subject, details={"driver": d.label,
-                                                        "driver_source": ol_src}),
+            warn_margin=warn, subject=subject, fix=low_fix,
+            details={"driver": d.label, "driver_source": ol_src}),
     ]
+
+
+def _level_high_fix(d: Endpoint, c, v_oh: float, v_ih: float, warn: float) -> str:
+    """The fix of a driver's high level short of a receiver's VIH (with the warning
+    margin ``warn``) on one rail, or from a driver on the higher one: an open-drain
+    line's pull-up level, or a push-pull driver's VOH (already at the current the line
+    draws, where its part states ``i_oh``)."""
+    voh = fmt_above(v_ih * (1.0 + warn), "V")
+    if d.pin.drive == "open-drain":
+        return M.LEVEL_HIGH_PULLUP_FIX.format(v_high=_fmt(c.v_high, "V"), v_oh=voh)
+    vih = fmt_below(v_oh / (1.0 + warn), "V")
+    if v_ih * (1.0 + warn) > d.vdd:  # no output on the driver's rail reaches it
+        return M.LEVEL_HIGH_FIX_RECEIVER.format(v_ih=vih)
+    return M.LEVEL_HIGH_FIX.format(v_ih=vih, v_oh=voh)
 
 
 def _slowest_edge(cases: dict, rx: Endpoint | None = None) -> tuple[float, str | None]:
@@ -337,9 +369,12 @@ def _edge_check(cases: dict, clock: float, warn: float, rx: Endpoint | None = No
     edge = _slowest_edge(cases, rx)[0]
     where, subject = ("the far end", None) if rx is None else (rx.label, rx.ref)
     limit = EDGE_FRACTION / clock
+    # the check passes where the period is at least edge / (fraction (1 - warn))
+    fix = (M.EDGE_TIME_FIX.format(clock=fmt_below(EDGE_FRACTION * (1.0 - warn) / edge, "Hz"))
+           if edge > 0 and warn < 1 else None)
     return rule_of_thumb(check_max(
         "edge-time", edge, limit, "s", EDGE_RULE,
         f"slowest 10-90 % edge {_fmt(edge, 's')} at {where} against "
         f"{EDGE_FRACTION:.0%} of the {_fmt(1.0 / clock, 's')} period"
         + _corner(cases.values(), "slow"),
-        warn_margin=warn, subject=subject, details={"fraction": EDGE_FRACTION}))
+        warn_margin=warn, subject=subject, fix=fix, details={"fraction": EDGE_FRACTION}))

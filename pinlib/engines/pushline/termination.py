@@ -8,6 +8,7 @@ import math
 import numpy as np
 
 from pinlib.core import eseries
+from pinlib.core import messages as M
 from pinlib.engines import memo
 from pinlib.engines.pushline.analysis import (
     LineAnalysis,
@@ -219,6 +220,34 @@ def auto_ideal(a: LineAnalysis) -> tuple[float, float | None]:
                 if d.pin.drive != "open-drain") \
         if any(d.pin.drive != "open-drain" for d in a.drivers) else math.nan
     return r_drv, (a.z0 - r_drv if math.isfinite(a.z0) and math.isfinite(r_drv) else None)
+
+
+def swing_fix(a: LineAnalysis) -> str | None:
+    """The fix of an overshoot or undershoot past a pin's rating on line ``a`` (where
+    the level it settles at does not break the rating alone): none on a lumped line
+    (no impedance: no ringing, only a level above the pin's supply, which the check's
+    own fix names where it breaks the rating); no series resistor yet,
+    the one "auto" fits (``Z0 - r_out`` to E24, named where every section gives the same
+    value: :func:`_best_match` tries each otherwise); one already, a larger one; and
+    where none applies or the driver alone matches Z0, a slower edge or a shorter
+    line."""
+    r_drv, ideal = auto_ideal(a)
+    if not math.isfinite(a.z0):  # a lumped line does not ring: its level is what is past
+        return None
+    if a.rs > 0:
+        return M.SWING_FIX_LARGER.format(rs=_fmt(a.rs, "Ω"), signal=a.signal)
+    if ideal is None:
+        return M.SWING_FIX_NO_SERIES
+    rs = chosen_series_resistor(a.z0, r_drv)
+    if rs <= 0:
+        return M.SWING_FIX_MATCHED.format(r_out=_fmt(r_drv, "Ω"), z0=_fmt(a.z0, "Ω"))
+    if a.line.series_resistor == "auto":  # it chose none: no check it cures failed
+        return M.SWING_FIX_VALUE.format(rs=_fmt(rs, "Ω"), signal=a.signal)
+    others = {chosen_series_resistor(s.z0, r_drv) for s in a.stretches
+              if s.td > 0 and math.isfinite(s.z0)}
+    if others - {rs}:
+        return M.SWING_FIX_AUTO_SECTIONS.format(signal=a.signal)
+    return M.SWING_FIX_AUTO.format(rs=_fmt(rs, "Ω"), signal=a.signal)
 
 
 def _termination_check(a: LineAnalysis) -> Check:

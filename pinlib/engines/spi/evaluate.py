@@ -11,6 +11,7 @@ from pinlib.core.labels import path_label
 from pinlib.engines.pushline import (
     EDGE_FRACTION,
 )
+from pinlib.engines.pushline.analysis import fmt_above, fmt_below
 from pinlib.engines.spi.analysis import SpiAnalysis, spi_analysis
 from pinlib.engines.spi.budget import Term
 from pinlib.engines.spi.modecheck import mode_checks
@@ -100,7 +101,9 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
     for ref, f, source in sa.f_limits:
         res.add(check_max("f-max", clock, f, "Hz", source,
                           f"clock {_fmt(clock, 'Hz')} against {ref}'s f_max {_fmt(f, 'Hz')}",
-                          warn_margin=0.0, subject=ref))  # a rating: at it is inside
+                          warn_margin=0.0, subject=ref,  # a rating: at it is inside
+                          fix=None if clock <= f else M.F_MAX_FIX.format(
+                              f_max=_fmt(f, "Hz"), clock=_fmt(clock, "Hz"), ref=ref)))
     for chk in mode_checks(bus, sa.mode_limits):
         res.add(chk)
     for la in sa.lines.values():
@@ -213,12 +216,16 @@ def term_check(t: Term, clock: float, warn: float, mode: int) -> Check:
     if t.margin_unit is None:
         chk = check_min(t.id, avail, t.required, "s", source, message, warn_margin=warn,
                         subject=t.subject, details=details)
+        if chk.status != "pass" and not t.assumed:
+            chk.fix = _timing_fix(t, avail, t.required * (1.0 + warn))
     else:
         # A requirement of 0 (recorded, or taken for one the part does not record): a
         # fraction of it means nothing, so the margin is the slack in seconds
         slack = float(t.check_margin(avail))
         status = STATUSES[int(t.slack_codes(slack))]
         fix = None
+        if status == "fail" and not t.assumed:
+            fix = _timing_fix(t, avail, t.required)
         if status == "warn":  # short of a 0 the part does not record: no limit to fail
             field = next(k for k in _REQUIRED_FIELDS if k in t.parts)
             fix = (f"record the part's {_REQUIRED_FIELDS[field]} from its datasheet, or "
@@ -234,6 +241,34 @@ def term_check(t: Term, clock: float, warn: float, mode: int) -> Check:
                                                      what=CS_ASSUMED[t.assumed][0])
         chk.fix = assumed_fix if chk.fix is None else f"{chk.fix}; {assumed_fix}"
     return chk
+
+
+def _timing_fix(t: Term, avail: float, passing: float) -> str:
+    """The fix of a timing term short of ``passing``, the time at which its check passes
+    (its requirement, with the design's warning margin where the margin is relative):
+    the clock at which it would, rounded down
+    (:func:`~pinlib.engines.pushline.analysis.fmt_below`), and what else gives the term
+    its time; where the period does not enter it (a CS lead or lag the
+    controller records), the lead or lag it needs. [1]"""
+    parts = t.parts
+    if t.a <= 0.0:
+        lead = parts.get("lead", parts.get("lag"))
+        need = fmt_above(float(lead) + passing - avail, "s")
+        if "lag" in parts:
+            return M.TIMING_CS_LAG_FIX.format(lag=_fmt(float(lead), "s"), need=need)
+        return M.TIMING_CS_LEAD_FIX.format(lead=_fmt(float(lead), "s"), need=need)
+    clock = fmt_below(t.a / (passing - t.b), "Hz")
+    out = M.TIMING_CLOCK_FIX.format(clock=clock)
+    if t.id == "copi-setup":
+        out += M.TIMING_COPI_SETUP_ALT.format(ref=t.subject, copi=_fmt(parts["copi_late"], "s"),
+                                              t_valid=_fmt(parts["t_valid_controller"], "s"))
+    elif t.id == "cipo-setup":
+        out += M.TIMING_CIPO_SETUP_ALT.format(ref=t.subject, sclk=_fmt(parts["sclk_late"], "s"),
+                                              t_valid=_fmt(parts["t_valid"], "s"),
+                                              cipo=_fmt(parts["cipo_late"], "s"))
+        if parts["bridges_round_trip"] > 0:
+            out += M.TIMING_BRIDGES_ALT.format(bridges=_fmt(parts["bridges_round_trip"], "s"))
+    return out
 
 
 #: The requirement of each term, by the key of its details, as the part records it.
