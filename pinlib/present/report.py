@@ -246,7 +246,8 @@ def _gpio(bus: BusResult) -> list[str]:
             if math.isfinite(f.value) and (best is None or f.value > best[0]):
                 best = (float(f.value), f.unit, ln.signal, edge)
     if best:
-        parts.append(f"worst edge {format_value(best[0], best[1])} ({best[2]} {best[3]})")
+        parts.append(f"slowest edge {format_value(best[0], best[1])} as designed "
+                     f"({best[2]} {best[3]})")
     worst = _worst_text(bus)
     if worst:
         parts.append(worst)
