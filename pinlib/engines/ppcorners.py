@@ -7,7 +7,7 @@ A board of the worst-corner search differs from the next only in its factors, an
 the engine makes of it falls apart along them:
 
 * each routed line's analysis (its checks, and the flights it gives each peripheral's
-  budget) depends only on that line's own factors (length, extra capacitance) and the
+  budget) depends only on that line's own factors (length, board capacitance) and the
   ones every line shares (the rails, the devices' pin capacitances): it is made once per
   distinct combination of those (the line engine, :meth:`LineInputs.analyse`), not once
   per board;
