@@ -3050,13 +3050,32 @@ def _(env):
 
 
 def _cohn_point():
-    from pinlib.physics.lines import _COHN_SOURCE
+    from pinlib.physics.coupled import COHN_COUPLED_SOURCE
     return M.OFF_VALIDITY_POINT.format(
-        kind="stripline", method="cohn", count=1, size=1, range="t/b = 0", quantity="t/b",
-        first="0.035", source=_COHN_SOURCE + "; a thickness given is ignored")
+        kind="coupled stripline", method="cohn", count=1, size=1, range="t/b = 0",
+        quantity="t/b", first="0.035",
+        source=COHN_COUPLED_SOURCE + "; a thickness given is ignored")
 
 
 @case("OFF_VALIDITY_POINT", _cohn_point)
+def _(env):
+    from pinlib.core.errors import ValidityWarning
+    from pinlib.physics.coupled import coupled_stripline
+    with pytest.warns(ValidityWarning) as caught:
+        coupled_stripline(0.2e-3, 1e-3, 4.2, 0.2e-3, 35e-6)
+    return str(caught[0].message)
+
+
+def _cohn_thick():
+    # Z0 74.7 Ω: Cohn's zero-thickness formula for w/b 0.2, er 4.2 (checked against
+    # scipy's elliptic integrals in tests/test_lines.py); 66.9 Ω: Wheeler 1978 with
+    # t/b 0.035 (pinlib's own formula, tested there) -- invented test geometry
+    from pinlib.physics.lines import _COHN_SOURCE
+    return M.COHN_THICKNESS_IGNORED.format(
+        thickness="35 µm", count="", z0="74.7 Ω", z0_wheeler="66.9 Ω", source=_COHN_SOURCE)
+
+
+@case("COHN_THICKNESS_IGNORED", _cohn_thick)
 def _(env):
     from pinlib.core.errors import ValidityWarning
     from pinlib.physics.lines import stripline
@@ -3317,7 +3336,7 @@ def _(env):
     return err
 
 
-@case("GEOMETRY_WARNING", lambda: M.GEOMETRY_WARNING.format(name="g", text=_cohn_point()))
+@case("GEOMETRY_WARNING", lambda: M.GEOMETRY_WARNING.format(name="g", text=_cohn_thick()))
 def _(env):
     # the geometry's name in front of its model's warning, once (a report names the line)
     from pinlib.core.errors import ValidityWarning

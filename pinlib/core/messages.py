@@ -509,6 +509,14 @@ OUTSIDE_VALIDITY = ("{kind} method '{method}': {quantity} outside {range} in {co
 OFF_VALIDITY_POINT = ("{kind} method '{method}' holds only at {range}: {quantity} "
                       "differs in {count} of {size} (e.g. {quantity} = {first}); "
                       "source: {source}")
+# a ValidityWarning, not an error: Cohn's stripline formula given a thickness, which it
+# cannot count ({count}: "" for one geometry, " (in 2 of 4)" for arrays)
+COHN_THICKNESS_IGNORED = ("stripline method 'cohn' is exact for a strip of zero "
+                          "thickness: thickness {thickness} is not taken into "
+                          "account{count}, so Z0 {z0} is the zero-thickness strip's "
+                          "(method 'wheeler', which counts the thickness, gives "
+                          "{z0_wheeler}); use 'wheeler' for a strip of finite thickness; "
+                          "source: {source}")
 
 # pinlib/physics/driver.py
 NOT_NUMBERS = "not a number or an array of numbers"
