@@ -3453,6 +3453,92 @@ def _(env):
     return " ".join(_assumed_cs(env)["notes"])
 
 
+@case("SET_ON_ASSUMED_CS", M.SET_ON_ASSUMED_CS.format(what="CS lead"))
+def _(env):
+    # the figure "Highest clock set by" of --detail says it too, not the note alone
+    path = env.write("design.toml", HEAD + _ASSUMED_CS_BUS)
+    main(["check", str(path), "--detail"])
+    out = env.capsys.readouterr().out
+    return next(ln for ln in out.splitlines() if "Highest clock set by" in ln)
+
+
+# an SPI bus with tolerances whose corners lower the highest clock and the edge rule's
+# (invented test data: 80 cm lines at 15 % length, lumped SCLK at 20 % capacitance)
+_CORNER_SPI_BUS = """
+[[bus]]
+id = "s"
+protocol = "spi"
+spi_mode = 0
+clock = "10 MHz"
+supply = "3.3 V"
+length_tolerance = "15 %"
+capacitance_tolerance = "20 %"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "nor-flash-spi" },
+]
+lines.sclk = { length = "60 cm", capacitance = "1.06 pF/cm" }
+lines.copi = { length = "80 cm", geometry = "g" }
+lines.cipo = { length = "80 cm", geometry = "g" }
+"""
+
+
+def _corner_clock():
+    """The bus of :data:`_CORNER_SPI_BUS` at its worst corners, and as designed."""
+    import tempfile
+
+    from pinlib.engines.pushpull import evaluate_board, evaluate_bus
+
+    with tempfile.TemporaryDirectory() as tmp:
+        path = Path(tmp) / "design.toml"
+        path.write_text(HEAD + _CORNER_SPI_BUS, encoding="utf-8")
+        design = load_design(path)
+    bus = design.buses[0]
+    return evaluate_bus(bus, design), evaluate_board(bus, design)
+
+
+def _clock_at_corner():
+    from pinlib.core.labels import path_label
+    from pinlib.core.quantity import format_si
+
+    res, nom = _corner_clock()
+    assert res.figures["max_clock"].value < nom.figures["max_clock"].value
+    by, by_nom = (r.figures["max_clock_limited_by"].value for r in (res, nom))
+    return M.CLOCK_AT_WORST_CORNER.format(
+        low=format_si(res.figures["max_clock"].value, "Hz"),
+        nominal=format_si(nom.figures["max_clock"].value, "Hz"),
+        nominal_by="" if by == by_nom else f", set by {path_label(by_nom)}",
+        by=path_label(by))
+
+
+def _edge_rule_at_corner():
+    from pinlib.core.quantity import format_si
+
+    res, nom = _corner_clock()
+    low, f_nom = (r.figures["max_clock_edge_rule"].value for r in (res, nom))
+    assert low < f_nom
+    return M.EDGE_RULE_AT_WORST_CORNER.format(
+        low=format_si(low, "Hz"), nominal=format_si(f_nom, "Hz"), line="sclk",
+        edges="far-end edge", percent="10")
+
+
+def _corner_notes(env) -> str:
+    """The notes of ``pinlib check --json`` on :data:`_CORNER_SPI_BUS`."""
+    main(["check", str(env.write("design.toml", HEAD + _CORNER_SPI_BUS)), "--json"])
+    return " ".join(json.loads(env.capsys.readouterr().out)["buses"][0]["notes"])
+
+
+@case("CLOCK_AT_WORST_CORNER", _clock_at_corner)
+def _(env):
+    # the note gives the figure's number, the worst corner's (it gave the nominal one's)
+    return _corner_notes(env)
+
+
+@case("EDGE_RULE_AT_WORST_CORNER", _edge_rule_at_corner)
+def _(env):
+    return _corner_notes(env)
+
+
 # ---------------------------------------------------------------- pinlib/studies/compare.py
 def _compare():
     from pinlib.studies import compare

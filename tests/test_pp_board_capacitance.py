@@ -117,3 +117,23 @@ def test_corners_over_arrays_equal_the_engine_board_by_board(design):
     assert fast == slow
     corners = [c["details"].get("corner", "") for ln in fast["lines"] for c in ln["checks"]]
     assert any("sclk board capacitance" in c for c in corners)
+
+
+def test_the_edge_rule_figure_and_note_are_the_worst_corners(design):
+    # the figure was the nominal board's (38.6 MHz here) while the edge-time check at
+    # the +20 % corner allowed less; now both give the slowest edge over the corners
+    from pinlib.core.quantity import format_si
+    from pinlib.engines.pushpull import evaluate_bus
+
+    bus = design.buses[0]
+    res = evaluate_bus(bus, design)
+    nominal = evaluate_board(bus, design).figures["max_clock_edge_rule"].value
+    slowest = max(c.value for ln in res.lines for c in ln.checks if c.id == "edge-time")
+    f_edge = res.figures["max_clock_edge_rule"].value
+    # 10 % of the period: the rule the edge-time check and the figure share
+    assert f_edge == pytest.approx(0.1 / slowest, rel=1e-12)
+    assert f_edge < nominal
+    note = next(n for n in res.notes if n.startswith("highest clock by the edge rule"))
+    assert note.startswith(f"highest clock by the edge rule of thumb "
+                           f"{format_si(f_edge, 'Hz')} at the worst corner of the tolerances "
+                           f"({format_si(nominal, 'Hz')} as designed, set by ")

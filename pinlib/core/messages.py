@@ -601,6 +601,19 @@ CS_TIMING_ASSUMED = ("the time available rests on an assumed {what}: {assumption
                      "controller's {field} from its datasheet makes this a full check")
 CS_TIMING_ASSUMED_FIX = ("record the controller's {field} (its {what}) from its datasheet: "
                          "half a clock period is assumed in its place")
+# pinlib/engines/spi/evaluate.py, on a bus with tolerances (pinlib/engines/ppworst.py):
+# the figures max_clock and max_clock_edge_rule are the lowest over the corners, and
+# their notes give that number, the board as designed's beside it
+CLOCK_AT_WORST_CORNER = ("highest clock {low} at the worst corner of the tolerances "
+                         "({nominal} as designed{nominal_by}): what the timing budget and "
+                         "the parts' f_max allow there, set by {by}")
+EDGE_RULE_AT_WORST_CORNER = ("highest clock by the edge rule of thumb {low} at the worst "
+                             "corner of the tolerances ({nominal} as designed, set by "
+                             "{line}): every {edges} keeps within {percent} % of the period "
+                             "up to it; it warns, it does not limit")
+# pinlib/present/values.py: after what sets the highest clock, in the summary line and
+# the figure "Highest clock set by" ({what}: "CS lead", "CS lag")
+SET_ON_ASSUMED_CS = ", on an assumed {what}"
 CLOCK_ON_ASSUMED_CS = ("which rests on the {what} assumed for {ref} (half a clock period: "
                        "it records no {field}); {ref}'s {field} from its datasheet makes "
                        "the figure a full one")
