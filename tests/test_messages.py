@@ -3054,13 +3054,32 @@ def _(env):
 
 
 def _cohn_point():
-    from pinlib.physics.lines import _COHN_SOURCE
+    from pinlib.physics.coupled import COHN_COUPLED_SOURCE
     return M.OFF_VALIDITY_POINT.format(
-        kind="stripline", method="cohn", count=1, size=1, range="t/b = 0", quantity="t/b",
-        first="0.035", source=_COHN_SOURCE + "; a thickness given is ignored")
+        kind="coupled stripline", method="cohn", count=1, size=1, range="t/b = 0",
+        quantity="t/b", first="0.035",
+        source=COHN_COUPLED_SOURCE + "; a thickness given is ignored")
 
 
 @case("OFF_VALIDITY_POINT", _cohn_point)
+def _(env):
+    from pinlib.core.errors import ValidityWarning
+    from pinlib.physics.coupled import coupled_stripline
+    with pytest.warns(ValidityWarning) as caught:
+        coupled_stripline(0.2e-3, 1e-3, 4.2, 0.2e-3, 35e-6)
+    return str(caught[0].message)
+
+
+def _cohn_thick():
+    # Z0 74.7 Ω: Cohn's zero-thickness formula for w/b 0.2, er 4.2 (checked against
+    # scipy's elliptic integrals in tests/test_lines.py); 66.9 Ω: Wheeler 1978 with
+    # t/b 0.035 (pinlib's own formula, tested there) -- invented test geometry
+    from pinlib.physics.lines import _COHN_SOURCE
+    return M.COHN_THICKNESS_IGNORED.format(
+        thickness="35 µm", count="", z0="74.7 Ω", z0_wheeler="66.9 Ω", source=_COHN_SOURCE)
+
+
+@case("COHN_THICKNESS_IGNORED", _cohn_thick)
 def _(env):
     from pinlib.core.errors import ValidityWarning
     from pinlib.physics.lines import stripline
@@ -3321,7 +3340,7 @@ def _(env):
     return err
 
 
-@case("GEOMETRY_WARNING", lambda: M.GEOMETRY_WARNING.format(name="g", text=_cohn_point()))
+@case("GEOMETRY_WARNING", lambda: M.GEOMETRY_WARNING.format(name="g", text=_cohn_thick()))
 def _(env):
     # the geometry's name in front of its model's warning, once (a report names the line)
     from pinlib.core.errors import ValidityWarning
@@ -3597,6 +3616,92 @@ def _(env):
 def _(env):
     return _fix_of(env, _open_drain(_RTC_INT, '{ length = "30 cm", geometry = "g", '
                                               'pullup = "100 Ω" }'), "level-low")
+
+
+@case("SET_ON_ASSUMED_CS", M.SET_ON_ASSUMED_CS.format(what="CS lead"))
+def _(env):
+    # the figure "Highest clock set by" of --detail says it too, not the note alone
+    path = env.write("design.toml", HEAD + _ASSUMED_CS_BUS)
+    main(["check", str(path), "--detail"])
+    out = env.capsys.readouterr().out
+    return next(ln for ln in out.splitlines() if "Highest clock set by" in ln)
+
+
+# an SPI bus with tolerances whose corners lower the highest clock and the edge rule's
+# (invented test data: 80 cm lines at 15 % length, lumped SCLK at 20 % capacitance)
+_CORNER_SPI_BUS = """
+[[bus]]
+id = "s"
+protocol = "spi"
+spi_mode = 0
+clock = "10 MHz"
+supply = "3.3 V"
+length_tolerance = "15 %"
+capacitance_tolerance = "20 %"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "nor-flash-spi" },
+]
+lines.sclk = { length = "60 cm", capacitance = "1.06 pF/cm" }
+lines.copi = { length = "80 cm", geometry = "g" }
+lines.cipo = { length = "80 cm", geometry = "g" }
+"""
+
+
+def _corner_clock():
+    """The bus of :data:`_CORNER_SPI_BUS` at its worst corners, and as designed."""
+    import tempfile
+
+    from pinlib.engines.pushpull import evaluate_board, evaluate_bus
+
+    with tempfile.TemporaryDirectory() as tmp:
+        path = Path(tmp) / "design.toml"
+        path.write_text(HEAD + _CORNER_SPI_BUS, encoding="utf-8")
+        design = load_design(path)
+    bus = design.buses[0]
+    return evaluate_bus(bus, design), evaluate_board(bus, design)
+
+
+def _clock_at_corner():
+    from pinlib.core.labels import path_label
+    from pinlib.core.quantity import format_si
+
+    res, nom = _corner_clock()
+    assert res.figures["max_clock"].value < nom.figures["max_clock"].value
+    by, by_nom = (r.figures["max_clock_limited_by"].value for r in (res, nom))
+    return M.CLOCK_AT_WORST_CORNER.format(
+        low=format_si(res.figures["max_clock"].value, "Hz"),
+        nominal=format_si(nom.figures["max_clock"].value, "Hz"),
+        nominal_by="" if by == by_nom else f", set by {path_label(by_nom)}",
+        by=path_label(by))
+
+
+def _edge_rule_at_corner():
+    from pinlib.core.quantity import format_si
+
+    res, nom = _corner_clock()
+    low, f_nom = (r.figures["max_clock_edge_rule"].value for r in (res, nom))
+    assert low < f_nom
+    return M.EDGE_RULE_AT_WORST_CORNER.format(
+        low=format_si(low, "Hz"), nominal=format_si(f_nom, "Hz"), line="sclk",
+        edges="far-end edge", percent="10")
+
+
+def _corner_notes(env) -> str:
+    """The notes of ``pinlib check --json`` on :data:`_CORNER_SPI_BUS`."""
+    main(["check", str(env.write("design.toml", HEAD + _CORNER_SPI_BUS)), "--json"])
+    return " ".join(json.loads(env.capsys.readouterr().out)["buses"][0]["notes"])
+
+
+@case("CLOCK_AT_WORST_CORNER", _clock_at_corner)
+def _(env):
+    # the note gives the figure's number, the worst corner's (it gave the nominal one's)
+    return _corner_notes(env)
+
+
+@case("EDGE_RULE_AT_WORST_CORNER", _edge_rule_at_corner)
+def _(env):
+    return _corner_notes(env)
 
 
 # ---------------------------------------------------------------- pinlib/studies/compare.py

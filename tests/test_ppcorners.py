@@ -3,7 +3,7 @@ engine board by board: every ranked margin, every check the result takes, every 
 figure, and the worst-case result itself, to the last bit.
 
 The designs are the invented ones of tests/data and the demo, given tolerances here
-(supply, length, extra capacitance, device pin capacitance, a device on its own rail)
+(supply, length, board capacitance, device pin capacitance, a device on its own rail)
 so that the exhaustive search (up to six parameters) and the screened one (more) both
 run, with boards where a receiver never switches (spi-cipo-never-high) and checks whose
 worst corners differ.

@@ -144,7 +144,7 @@ def test_axes_group_line_factors_and_keep_rails_apart():
              ("b", "supply", 1.8, 0.05, "V", ("rail", 1.8, 0.05)),
              ("c", "length", 0.1, 0.1, "m", ("line-length", "x", "sclk")),
              ("d", "length", 0.1, 0.1, "m", ("line-length", "x", "copi")),
-             ("e", "capacitance", 1.0, 0.2, "", ("line-extra", "x", "copi"))]
+             ("e", "capacitance", 1.0, 0.2, "", ("line-board", "x", "copi"))]
     axes = pptable.axes_of(specs, 4.0 / 3.0, 1e-6)
     kinds = [ax.kind for ax in axes]
     assert kinds.count("supply") == 2 and kinds.count("length") == 1

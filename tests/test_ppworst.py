@@ -125,3 +125,35 @@ def test_assembling_walks_every_named_check_or_raises(monkeypatch):
                         lambda b, r: [*names(b, r), {"name": "extra", "engine": None}])
     with pytest.raises(RuntimeError, match=r"checks assembled against \d+ named \(.*extra\)"):
         _assembled(bus, d)
+
+
+def test_clock_figures_and_their_notes_give_the_worst_corner():
+    # the figure read the lowest clock over the corners and its note the nominal one's
+    # (29.5 MHz in the note, 28.8 MHz in the figure); the edge rule's figure was the
+    # nominal board's while the edge-time check at the long corner allowed less
+    from pinlib.core.labels import path_label
+    from pinlib.core.quantity import format_si
+
+    d = _design()
+    bus = d.buses[0]
+    res = evaluate_bus(bus, d)
+    nominal = evaluate_board(bus, d)
+    # derived from the tolerance: every line 80 cm + 15 %, a corner of the search
+    long_board = evaluate_board(_scaled(bus, 1.15), d)
+    f_nom = nominal.figures["max_clock"].value
+    f_low = res.figures["max_clock"].value
+    assert f_low <= long_board.figures["max_clock"].value * (1 + 1e-12) < f_nom
+    note = next(n for n in res.notes if n.startswith("highest clock ")
+                and "edge rule" not in n)
+    assert note.startswith(f"highest clock {format_si(f_low, 'Hz')} at the worst corner")
+    assert f"({format_si(f_nom, 'Hz')} as designed" in note
+    assert f"set by {path_label(res.figures['max_clock_limited_by'].value)}" in note
+    # the edge rule: the slowest edge-time check at its worst corner sets it (10 % of
+    # the period, the rule the check and the figure share); here the board as designed
+    # has the slowest edge, and the note is its own
+    slowest = max(c.value for ln in res.lines for c in ln.checks if c.id == "edge-time")
+    f_edge = res.figures["max_clock_edge_rule"].value
+    assert f_edge == pytest.approx(0.1 / slowest, rel=1e-12)
+    assert f_edge == nominal.figures["max_clock_edge_rule"].value
+    assert any(n.startswith(f"highest clock by the edge rule of thumb "
+                            f"{format_si(f_edge, 'Hz')}: ") for n in res.notes)

@@ -1138,7 +1138,9 @@ def test_notes_name_a_figure_by_its_label(built):
     for text in (page, md):
         # (the two highest-clock notes are worded so by the engine itself)
         assert "highest clock 24 MHz: what the timing budget" in text.replace("\n", " ")
-        assert "highest clock by the edge rule of thumb 45 MHz" in text.replace("\n", " ")
+        # the demo's display bus has tolerances: the edge rule is its worst corner's
+        assert "highest clock by the edge rule of thumb 44.9 MHz at the worst corner" \
+            in text.replace("\n", " ")
         assert "CIPO setup margin: not computed" in text
         assert not re.search(r"\b(max_clock|max_clock_edge_rule|cipo_setup_margin)\b", text)
 

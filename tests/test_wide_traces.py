@@ -117,5 +117,6 @@ def test_a_cohn_note_names_the_line_once_and_the_zero_thickness(tmp_path, capsys
                   height='spacing = "0.5 mm"\nthickness = "18 µm"', method="cohn")
     assert main(["check", str(path), "--detail"]) in (0, 1)
     out = " ".join(capsys.readouterr().out.split())
-    assert "cs: geometry 'w': stripline method 'cohn' holds only at t/b = 0" in out
+    assert ("cs: geometry 'w': stripline method 'cohn' is exact for a strip of zero "
+            "thickness: thickness 18 µm is not taken into account") in out
     assert "cs: cs:" not in out and "0 <= t/b <= 0" not in out

@@ -508,6 +508,14 @@ OUTSIDE_VALIDITY = ("{kind} method '{method}': {quantity} outside {range} in {co
 OFF_VALIDITY_POINT = ("{kind} method '{method}' holds only at {range}: {quantity} "
                       "differs in {count} of {size} (e.g. {quantity} = {first}); "
                       "source: {source}")
+# a ValidityWarning, not an error: Cohn's stripline formula given a thickness, which it
+# cannot count ({count}: "" for one geometry, " (in 2 of 4)" for arrays)
+COHN_THICKNESS_IGNORED = ("stripline method 'cohn' is exact for a strip of zero "
+                          "thickness: thickness {thickness} is not taken into "
+                          "account{count}, so Z0 {z0} is the zero-thickness strip's "
+                          "(method 'wheeler', which counts the thickness, gives "
+                          "{z0_wheeler}); use 'wheeler' for a strip of finite thickness; "
+                          "source: {source}")
 
 # pinlib/physics/driver.py
 NOT_NUMBERS = "not a number or an array of numbers"
@@ -592,6 +600,19 @@ CS_TIMING_ASSUMED = ("the time available rests on an assumed {what}: {assumption
                      "controller's {field} from its datasheet makes this a full check")
 CS_TIMING_ASSUMED_FIX = ("record the controller's {field} (its {what}) from its datasheet: "
                          "half a clock period is assumed in its place")
+# pinlib/engines/spi/evaluate.py, on a bus with tolerances (pinlib/engines/ppworst.py):
+# the figures max_clock and max_clock_edge_rule are the lowest over the corners, and
+# their notes give that number, the board as designed's beside it
+CLOCK_AT_WORST_CORNER = ("highest clock {low} at the worst corner of the tolerances "
+                         "({nominal} as designed{nominal_by}): what the timing budget and "
+                         "the parts' f_max allow there, set by {by}")
+EDGE_RULE_AT_WORST_CORNER = ("highest clock by the edge rule of thumb {low} at the worst "
+                             "corner of the tolerances ({nominal} as designed, set by "
+                             "{line}): every {edges} keeps within {percent} % of the period "
+                             "up to it; it warns, it does not limit")
+# pinlib/present/values.py: after what sets the highest clock, in the summary line and
+# the figure "Highest clock set by" ({what}: "CS lead", "CS lag")
+SET_ON_ASSUMED_CS = ", on an assumed {what}"
 CLOCK_ON_ASSUMED_CS = ("which rests on the {what} assumed for {ref} (half a clock period: "
                        "it records no {field}); {ref}'s {field} from its datasheet makes "
                        "the figure a full one")

@@ -3,7 +3,8 @@
 :mod:`pinlib.studies.whatif` samples a design's tolerances; this module gives it the push-pull
 buses.  A variant is the bus with its own supply rails (``supply_tolerance``), its own
 line lengths (``length_tolerance``: every section of a line scaled together) and its
-own extra line capacitance (``capacitance_tolerance``).  The design format gives a
+own line board capacitance (``capacitance_tolerance``: each section's capacitance per
+length, its inductance held, and the line's extra capacitance).  The design format gives a
 line's series resistor no tolerance, so it stays nominal; a line whose resistor is
 "auto" keeps the value the engine chose on the nominal board (a built board carries
 the resistor the design chose, whatever its own trace turned out to be).

@@ -7,7 +7,7 @@ A board of the worst-corner search differs from the next only in its factors, an
 the engine makes of it falls apart along them:
 
 * each routed line's analysis (its checks, and the flights it gives each peripheral's
-  budget) depends only on that line's own factors (length, extra capacitance) and the
+  budget) depends only on that line's own factors (length, board capacitance) and the
   ones every line shares (the rails, the devices' pin capacitances): it is made once per
   distinct combination of those (the line engine, :meth:`LineInputs.analyse`), not once
   per board;
@@ -44,11 +44,12 @@ from pinlib.engines.ppvariant import (
     parameter_specs,
 )
 from pinlib.engines.ppworst import BoardRows, rank_margin
-from pinlib.engines.pushline import Flight
+from pinlib.engines.pushline import EDGE_FRACTION, Flight
 from pinlib.engines.spi import budget_terms
 from pinlib.engines.spi.analysis import SpiAnalysis, line_flights, line_setup, term_clocks
 from pinlib.engines.spi.budget import EDGE_FIELDS, Term
 from pinlib.engines.spi.evaluate import MARGIN_FIGURES, lowest_margins, term_check
+from pinlib.engines.spi.margins import max_clock
 from pinlib.model.design import Bus, Design
 from pinlib.model.result import BusResult, LineResult
 
@@ -137,8 +138,9 @@ class _Corners:
         rank, present = np.full((n, m), np.inf), np.zeros((n, m), dtype=bool)
         checks: dict = {}   # check index -> its check at board i (a function of i)
         flights: dict = {}
+        edges: dict = {}    # signal -> its slowest edge-time value at each board
         for sig in self.sa.lines:
-            got = self._line(u, sig, rank, present, checks)
+            got = self._line(u, sig, rank, present, checks, edges)
             if got is None:
                 return None
             flights[sig] = got
@@ -161,14 +163,17 @@ class _Corners:
             checks[j] = lambda i, c=c: c
         if not self._supply(u, rank, present, checks):
             return None
-        return BoardRows(rank, present, self._figures(terms, clock, n),
+        return BoardRows(rank, present, self._figures(terms, clock, n, edges),
                          lambda i, j: checks[j](i))
 
-    def _line(self, u, sig, rank, present, checks) -> dict | None:
-        """One line's checks into ``rank``/``present`` and, per peripheral, the flights it
-        gives: ``{(peripheral index, field): (early, late)}``, each of shape ``(n,)``."""
+    def _line(self, u, sig, rank, present, checks, edges) -> dict | None:
+        """One line's checks into ``rank``/``present``, its slowest ``edge-time`` value
+        into ``edges`` (the edge rule's term, as :func:`~pinlib.engines.spi.analysis.
+        spi_analysis` takes it) and, per peripheral, the flights it gives:
+        ``{(peripheral index, field): (early, late)}``, each of shape ``(n,)``."""
         buses, inverse = self._variants(u, sig)
         nv = len(buses)
+        slowest, timed = np.full(nv, np.nan), np.zeros(nv, dtype=bool)
         cols: dict[int, np.ndarray] = {}
         out: dict = {}
         count: dict = {}   # how many variants give each flight (all, or the bus is not served)
@@ -176,6 +181,9 @@ class _Corners:
         for v, bus_v in enumerate(buses):
             inputs, controller, peripherals, _, _ = line_setup(bus_v, self.design, sig)
             la = inputs[sig].analyse()
+            times = [float(c.value) for c in la.result.checks if c.id == "edge-time"]
+            if times:
+                slowest[v], timed[v] = max(times), True
             res = BusResult(id=self.bus.id, lines=[LineResult(signal=sig,
                                                               checks=la.result.checks)])
             for nm, c in zip(check_names(self.bus, res), la.result.checks, strict=True):
@@ -196,6 +204,10 @@ class _Corners:
                     count[(i, edge)] = count.get((i, edge), 0) + 1
         if any(c != nv for c in count.values()):
             return None
+        if self.bus.clock and np.any(timed):
+            if not np.all(timed):
+                return None   # an edge-time check on some variants only
+            edges[sig] = slowest[inverse]
         for j, col in cols.items():
             has = ~np.isnan(col)   # a rank is never NaN (rank_margin): NaN, no such check
             rank[:, j] = np.where(has, col, np.inf)[inverse]
@@ -237,14 +249,28 @@ class _Corners:
             checks[j0 + q] = lambda i, q=q: held[inverse[i]][q]
         return True
 
-    def _figures(self, terms, clock: float, n: int) -> dict:
-        """``max_clock`` and the lowest timing margins at each board, NaN for None."""
-        f_top = np.full(n, np.inf)
-        if terms:
-            f_top = np.min(term_clocks(terms), axis=0)
-        for _, f, _ in self.sa.f_limits:
-            f_top = np.minimum(f_top, f)
-        figs = {"max_clock": np.where(f_top > 0, f_top, np.nan)}
+    def _figures(self, terms, clock: float, n: int, edges: dict) -> dict:
+        """``max_clock``, what sets it, the edge rule's clock and the lowest timing
+        margins at each board, NaN for None (as :meth:`SpiAnalysis.clock_limits` and
+        :meth:`SpiAnalysis.edge_rule_clock` take them)."""
+        rows = [np.broadcast_to(c, (n,)) for c in term_clocks(terms)] if terms else []
+        names = [f"{t.id} {t.subject}" for t in terms]
+        for ref, f, _ in self.sa.f_limits:
+            rows.append(np.full(n, f))
+            names.append(f"f_max {ref}")
+        if rows:
+            table = np.stack(rows)
+            first = np.argmin(table, axis=0)   # the first lowest: the engine's stable sort
+            f_top = table[first, np.arange(n)]
+            by = np.array([names[i] for i in first], dtype=object)
+        else:
+            f_top, by = np.full(n, np.inf), np.full(n, "nothing", dtype=object)
+        figs = {"max_clock": np.where(f_top > 0, f_top, np.nan), "max_clock_limited_by": by}
+        f_edge = np.full(n, np.inf)
+        for e in edges.values():
+            k = np.where(np.isfinite(e), e, np.inf)[:, None]
+            f_edge = np.minimum(f_edge, max_clock(np.full((n, 1), EDGE_FRACTION), k))
+        figs["max_clock_edge_rule"] = f_edge
         low = lowest_margins(terms, clock)
         for fig, tid in MARGIN_FIGURES:
             figs[fig] = np.broadcast_to(low.get(tid, np.nan), (n,))

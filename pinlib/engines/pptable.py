@@ -1,14 +1,14 @@
 """Tables of the push-pull engine over a bus's tolerance box, for large batches of boards.
 
 A drawn board of an SPI or GPIO bus differs from the design in its rails, its line
-lengths and its extra line capacitance (:mod:`pinlib.engines.ppvariant`).  Each line's
+lengths and its lines' board capacitance (:mod:`pinlib.engines.ppvariant`).  Each line's
 results (its checks, and the flights it gives the timing budget) depend only on that
 line's own length and capacitance factors, on the rails and on the pins' capacitance; the
 bus's timing checks are sums of flights from several lines
 (:func:`pinlib.engines.spi.budget_terms`).  So:
 
 1. **Nodes.**  The engine evaluates the bus at every node of a grid over the box: one
-   axis for the length factor (every line at the same factor), one for the extra
+   axis for the length factor (every line at the same factor), one for the board
    capacitance factor, one per toleranced rail and one per device whose pin
    capacitance is toleranced.  One evaluation gives every line's
    results at that node, since no line depends on another's factors.
@@ -109,7 +109,7 @@ class Axis:
     """One axis of the table: the factor keys it sets and the span it covers.
 
     ``kind`` is ``"length"``, ``"capacitance"``, ``"supply"`` or ``"pullup"``; a line's
-    length, extra-capacitance or pull-up axis sets the key of every line at once
+    length, board-capacitance or pull-up axis sets the key of every line at once
     (``keys``), a rail's or a device's axis its one key.
     """
 

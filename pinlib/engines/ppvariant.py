@@ -79,9 +79,9 @@ def parameter_specs(bus: Bus) -> list[tuple]:
         if ltol > 0 and line.sections and line.length > 0:
             add(f"{line_place(bus.id, sig)} length", "length", float(line.length), ltol, "m",
                 ("line-length", bus.id, sig))
-        if ctol > 0 and line.extra_capacitance > 0:
-            add(f"{line_place(bus.id, sig)} extra capacitance", "capacitance", 1.0, ctol, "",
-                ("line-extra", bus.id, sig))
+        if ctol > 0 and (line.extra_capacitance > 0 or line.length > 0):
+            add(f"{line_place(bus.id, sig)} board capacitance", "capacitance",
+                1.0, ctol, "", ("line-board", bus.id, sig))
         if line.pullup is not None and line.pullup_tolerance:
             add(f"{line_place(bus.id, sig)} pull-up", "pullup", float(line.pullup),
                 line.pullup_tolerance, "Ω", ("line-pullup", bus.id, sig))
@@ -90,9 +90,9 @@ def parameter_specs(bus: Bus) -> list[tuple]:
 
 def line_of_key(key: tuple) -> str | None:
     """The line a parameter key of :func:`parameter_specs` belongs to (its length or
-    extra capacitance, a line's pull-up), or None for one every line shares (a rail,
+    board capacitance, a line's pull-up), or None for one every line shares (a rail,
     a device's pins)."""
-    return key[2] if key[0] in ("line-length", "line-extra", "line-pullup") else None
+    return key[2] if key[0] in ("line-length", "line-board", "line-pullup") else None
 
 
 def line_variants(bus: Bus, specs: list[tuple], u, sig: str | None,
@@ -176,8 +176,10 @@ def vary_bus(bus: Bus, factor, resistors: dict[str, float] | None = None) -> Bus
     Returns
     -------
     Bus
-        A copy with its supplies, line lengths, extra capacitances, GPIO line pull-ups
-        and device pin capacitances multiplied. [1]
+        A copy with its supplies, line lengths, board capacitances (each section's
+        capacitance per length, :attr:`~pinlib.model.design.Section.capacitance_factor`,
+        and the extra capacitance), GPIO line pull-ups and device pin capacitances
+        multiplied. [1]
     """
     resistors = resistors or {}
     vtol = bus.supply_tolerance or 0.0
@@ -198,13 +200,15 @@ def vary_bus(bus: Bus, factor, resistors: dict[str, float] | None = None) -> Bus
     lines = {}
     for sig, line in bus.lines.items():
         fl = factor(("line-length", bus.id, sig))
-        fc = factor(("line-extra", bus.id, sig))
+        fc = factor(("line-board", bus.id, sig))
         fp = factor(("line-pullup", bus.id, sig))
         if fl is not None:
             line = replace(line, sections=tuple(replace(s, length=s.length * fl)
                                                 for s in line.sections))
-        if fc is not None:
-            line = replace(line, extra_capacitance=line.extra_capacitance * fc)
+        if fc is not None:  # the sections' C per length (L held) and the extra capacitance
+            line = replace(line, extra_capacitance=line.extra_capacitance * fc,
+                           sections=tuple(replace(s, capacitance_factor=float(fc))
+                                          for s in line.sections))
         if fp is not None and line.pullup is not None:
             line = replace(line, pullup=line.pullup * fp)
         if line.series_resistor == "auto" and sig in resistors:

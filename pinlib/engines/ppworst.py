@@ -51,7 +51,10 @@ __all__ = ["EXHAUSTIVE_LIMIT", "search", "first_boards", "rank_margin", "at_wors
 EXHAUSTIVE_LIMIT = 6
 
 #: Bus figures taken at their worst over the corners: the smallest is the worst.
-_LOWEST_FIGURES = ("max_clock", "cipo_setup_margin", "copi_setup_margin", "copi_hold_margin")
+_LOWEST_FIGURES = ("max_clock", "max_clock_edge_rule", "cipo_setup_margin",
+                   "copi_setup_margin", "copi_hold_margin")
+#: Bus figures taken from the board where another is lowest: what sets ``max_clock``.
+_FOLLOWING_FIGURES = {"max_clock_limited_by": "max_clock"}
 
 
 def rank_margin(check) -> float:
@@ -141,7 +144,8 @@ class BoardRows(NamedTuple):
         Shape ``(n, m)``: whether the board has the check (bool). [1]
     figures : dict
         Each of the bus figures taken at their lowest over the corners, shape ``(n,)``,
-        NaN where the board has none (None in its result). [1]
+        NaN where the board has none (None in its result), and what sets ``max_clock``
+        (``max_clock_limited_by``, text). [1]
     check : callable
         ``check(i, j)``: the engine's check ``j`` at board ``i`` (for the boards whose
         checks the result takes). [1]
@@ -180,8 +184,11 @@ def at_worst_corners(bus: Bus, design: Design, nominal: BusResult,
     BusResult
         The nominal result when nothing is toleranced; else a copy whose checks are the
         worst corner's (each check's message names its corner, ``details["corner"]``
-        lists it), whose bus figures ``max_clock`` and the timing margins are the lowest
-        over the boards evaluated, and whose notes say which corners were evaluated.
+        lists it), whose bus figures ``max_clock``, ``max_clock_edge_rule`` and the
+        timing margins are the lowest over the boards evaluated and the nominal one
+        (``max_clock_limited_by`` the board's where ``max_clock`` is lowest, and the
+        notes of the two clocks giving the corner's number beside the nominal one's
+        where a corner lowers them), and whose notes say which corners were evaluated.
         Line figures stay those of the nominal board.
     """
     specs = parameter_specs(bus)
@@ -206,8 +213,7 @@ def at_worst_corners(bus: Bus, design: Design, nominal: BusResult,
         got = boards(np.array(new)) if boards is not None and new else None
         for i, key in enumerate(new if got is not None else ()):
             seen[key] = (got.rank[i], got.present[i],
-                         {f: None if math.isnan(v[i]) else float(v[i])
-                          for f, v in got.figures.items()},
+                         {f: _figure_at(v, i) for f, v in got.figures.items()},
                          lambda j, i=i, got=got: got.check(i, j))
         for key in keys:
             if key not in seen:
@@ -219,13 +225,23 @@ def at_worst_corners(bus: Bus, design: Design, nominal: BusResult,
         return _assemble(bus, nominal, specs, worst, seen)
 
 
+def _figure_at(v: np.ndarray, i: int):
+    """A figure of :class:`BoardRows` at board ``i``: a float, None for NaN, or a text
+    (what sets the clock)."""
+    x = v[i]
+    if isinstance(x, str):
+        return x
+    return None if math.isnan(x) else float(x)
+
+
 def _row_of(checks: dict[int, object], res: BusResult, m: int) -> tuple:
     """One board's (rank, present, figures, its check j) from its result (``checks``:
     by index)."""
     rank, present = np.full(m, np.inf), np.zeros(m, dtype=bool)
     for j, c in checks.items():
         rank[j], present[j] = rank_margin(c), True
-    figs = {f: res.figures[f].value for f in _LOWEST_FIGURES if f in res.figures}
+    figs = {f: res.figures[f].value for f in (*_LOWEST_FIGURES, *_FOLLOWING_FIGURES)
+            if f in res.figures}
     return rank, present, figs, checks.__getitem__
 
 
@@ -292,20 +308,80 @@ def _assemble(bus, nominal, specs, worst, seen) -> BusResult:
         raise RuntimeError(
             f"push-pull worst case of bus {bus.id!r}: {j} checks assembled against "
             f"{len(names)} named ({', '.join(nm['name'] for nm in names)})")
+    lowest_at: dict[str, tuple] = {}   # figure -> the board it is lowest on
+    # the board as designed is among the boards, as it is for the checks (a search of
+    # vertices alone does not evaluate it, and a figure need not be monotonic)
+    zero = (0.0,) * len(specs)
+    boards = {zero: {f: nominal.figures[f].value
+                     for f in (*_LOWEST_FIGURES, *_FOLLOWING_FIGURES) if f in nominal.figures},
+              **{key: row[2] for key, row in seen.items()}}
     for fig in _LOWEST_FIGURES:
         if fig in out.figures and out.figures[fig].value is not None:
-            vals = [row[2][fig] for row in seen.values() if fig in row[2]]
+            vals = [(key, figs[fig]) for key, figs in boards.items() if fig in figs]
             # a board where it does not exist (a receiver that never switches) is the worst
-            low = None if None in vals else min(float(v) for v in vals)
+            low = None
+            if all(v is not None for _, v in vals):
+                # the lowest; of boards alike, the nominal, then the first in corner order
+                key, low = min(vals, key=lambda kv: (float(kv[1]), any(kv[0]), kv[0]))
+                low = float(low)
+                lowest_at[fig] = key
             out.figures[fig] = replace(out.figures[fig], value=low, reason=None if low is not None
                                        else "none at a corner of the tolerances (see the "
                                             "checks there)")
             if low is None:
                 out.notes.append(f"{fig}: none at a corner of the tolerances (see the "
                                  "checks there)")
+    for fig, by in _FOLLOWING_FIGURES.items():
+        if fig in out.figures and by in lowest_at and fig in boards[lowest_at[by]]:
+            out.figures[fig] = replace(out.figures[fig], value=boards[lowest_at[by]][fig])
+    _clock_notes(nominal, out)
     auto = any(ln.series_resistor == "auto" for ln in bus.lines.values())
     out.notes.append(f"checks at their worst corner: {method_text(len(specs))}, "
                      f"{len(seen)} boards evaluated"
                      + (" (an \"auto\" series resistor kept at its nominal choice)" if auto
                         else "") + "; line figures are the nominal board's")
     return out
+
+
+def _clock_notes(nominal: BusResult, out: BusResult) -> None:
+    """The notes of an SPI bus's ``max_clock`` and ``max_clock_edge_rule`` where a corner
+    lowers them: the figure's number (the lowest over the boards), what sets it there,
+    and the board as designed's beside it, in place of the nominal note."""
+    from pinlib.core.quantity import format_si
+    from pinlib.engines.spi.analysis import SpiAnalysis
+    from pinlib.engines.spi.evaluate import (
+        clock_note,
+        clock_note_at_corner,
+        edge_rule_note,
+        edge_rule_note_at_corner,
+    )
+
+    sa = nominal.workings
+    if not isinstance(sa, SpiAnalysis):
+        return
+
+    def lowered(fig, same=True):
+        """(nominal, lowest) where a corner lowers the figure as written (3 figures), or
+        sets it by something else (``same`` False); else None."""
+        a, b = nominal.figures.get(fig), out.figures.get(fig)
+        if a is None or b is None or a.value is None or b.value is None:
+            return None
+        a, b = float(a.value), float(b.value)
+        moved = b < a and format_si(b, "Hz") != format_si(a, "Hz")
+        return (a, b) if math.isfinite(a) and (moved or not same) else None
+
+    def swap(old, new):
+        if old in out.notes:
+            out.notes[out.notes.index(old)] = new
+
+    by_nom = nominal.figures.get("max_clock_limited_by")
+    by = out.figures.get("max_clock_limited_by")
+    by_nom, by = (by_nom.value if by_nom else None), (by.value if by else None)
+    got = lowered("max_clock", same=by == by_nom)
+    if got is not None:
+        f_nom, f_low = got
+        swap(clock_note(sa, f_nom, by_nom), clock_note_at_corner(sa, f_low, by, f_nom, by_nom))
+    got = lowered("max_clock_edge_rule")
+    if got is not None:
+        sig = sa.edge_rule_clock()[1]
+        swap(edge_rule_note(sa, got[0], sig), edge_rule_note_at_corner(sa, got[1], got[0], sig))

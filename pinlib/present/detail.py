@@ -63,7 +63,7 @@ def _figures(g: Group, indent: str, cols: int) -> list[str]:
     """A group's figures under their labels: the value column wraps (a reason in words,
     "no section with a delay (...)") and the labels keep their width, unless the width
     leaves the values too little room; then the labels wrap."""
-    rows = [list(cells) for cells in figure_cells(g.figures)]
+    rows = [list(cells) for cells in figure_cells(g.figures, g.checks)]
     if not rows:
         return []
     room = cols - len(indent) - 2 - max(len(r[0]) for r in rows)

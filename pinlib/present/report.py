@@ -31,7 +31,13 @@ from pinlib.model.result import (
 )
 from pinlib.present.detail import detail_lines
 from pinlib.present.terminal import DEFAULT_WIDTH, status_word, wrap
-from pinlib.present.values import counts, format_value, search_bound_words, with_fix
+from pinlib.present.values import (
+    assumed_cs_words,
+    counts,
+    format_value,
+    search_bound_words,
+    with_fix,
+)
 from pinlib.present.visible import visible
 
 __all__ = ["format_text", "format_value", "problem_line", "bus_line", "coupling_line", "counts",
@@ -190,9 +196,9 @@ def _spi(bus: BusResult) -> list[str]:
                      else "max clock — (not computed; the notes in --detail say why)")
     if clock:
         by = _fig_text(bus, "max_clock_limited_by")
-        assumed = by and _assumed_cs(bus, by)
+        assumed = assumed_cs_words(bus.checks, by) if by else ""
         by = by and path_label(by)  # "cipo-setup U2" as the checks name it
-        by = by and by + (f", on an assumed {assumed}" if assumed else "")
+        by = by and by + assumed
         parts.append(f"max clock {clock}" + (f" (set by {by})" if by else ""))
     slack = _timing_slack(bus)
     if slack:
@@ -201,18 +207,6 @@ def _spi(bus: BusResult) -> list[str]:
     if worst:
         parts.append(worst)
     return parts
-
-
-def _assumed_cs(bus: BusResult, by: str) -> str | None:
-    """The CS time (``"CS lead"``, ``"CS lag"``) assumed for a controller that records
-    none, where the timing check named ``by`` (``"cipo-first-bit U2"``, the figure
-    ``max_clock_limited_by``) rests on it (its details' ``assumed``); None otherwise."""
-    from pinlib.engines.spi.modes import CS_ASSUMED
-
-    for c in bus.checks:
-        if f"{c.id} {c.subject}" == by and c.details.get("assumed") in CS_ASSUMED:
-            return CS_ASSUMED[c.details["assumed"]][0]
-    return None
 
 
 #: The SPI timing-budget figures (available minus required time at the design's clock)

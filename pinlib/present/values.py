@@ -6,11 +6,13 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 
+from pinlib.core import messages as M
 from pinlib.core.labels import figure_label, plural_s, shown_figures
 from pinlib.core.quantity import format_value
 from pinlib.model.result import BusResult, Check, DesignResult, Figure, figure_text
 
-__all__ = ["format_value", "counts", "with_fix", "figure_cells", "SEARCH_BOUNDS",
+__all__ = ["format_value", "counts", "with_fix", "figure_cells", "assumed_cs",
+           "assumed_cs_words", "SEARCH_BOUNDS",
            "search_bound_words", "limit_side", "FLIGHTS", "FLIGHT_HEAD", "flight_rows"]
 
 #: Figures a search gives (a coupling's), with the figure of the search's own bound and
@@ -43,14 +45,39 @@ def _same(a: Figure, b: Figure) -> bool:
     return a.value == b.value and a.unit == b.unit
 
 
-def figure_cells(figures: Mapping[str, Figure]) -> list[tuple[str, str]]:
+def assumed_cs(checks, by: str) -> str | None:
+    """The CS time (``"CS lead"``, ``"CS lag"``) assumed for a controller that records
+    none, where the timing check named ``by`` (``"cipo-first-bit U2"``, the figure
+    ``max_clock_limited_by``) rests on it (its details' ``assumed``); None otherwise."""
+    from pinlib.engines.spi.modes import CS_ASSUMED
+
+    for c in checks:
+        if f"{c.id} {c.subject}" == by and c.details.get("assumed") in CS_ASSUMED:
+            return CS_ASSUMED[c.details["assumed"]][0]
+    return None
+
+
+def assumed_cs_words(checks, by: str) -> str:
+    """What the text adds after what sets the highest clock (:func:`assumed_cs`):
+    ``", on an assumed CS lead"``, or ``""``."""
+    what = assumed_cs(checks, by) if by else None
+    return M.SET_ON_ASSUMED_CS.format(what=what) if what else ""
+
+
+def figure_cells(figures: Mapping[str, Figure], checks=()) -> list[tuple[str, str]]:
     """A group's figures as people read them: (label, value with its unit) in table
     order, each quantity once (:func:`pinlib.core.labels.shown_figures`: a line's copy of
     the bus figure, the pull-up that is the resistor, shown once), a search's result at
     the search's own bound with its words (:func:`search_bound_words`: "18 µm or
-    less"); ids stay in the JSON."""
-    return [(figure_label(n), _text(n, figures[n]) + search_bound_words(figures, n))
-            for n in shown_figures(figures, same=_same)]
+    less"), what sets the highest clock with the CS time it rests on where the group's
+    ``checks`` say it assumes one (:func:`assumed_cs_words`); ids stay in the JSON."""
+    out = []
+    for n in shown_figures(figures, same=_same):
+        text = _text(n, figures[n]) + search_bound_words(figures, n)
+        if n == "max_clock_limited_by" and isinstance(figures[n].value, str):
+            text += assumed_cs_words(checks, figures[n].value)
+        out.append((figure_label(n), text))
+    return out
 
 
 def _text(name: str, f: Figure) -> str:

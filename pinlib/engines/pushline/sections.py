@@ -81,28 +81,41 @@ def stretches_of(sections: Sequence[Section]) -> list[Stretch]:
     Per-length values follow the lossless-line relations ``Z0 = tpd / C`` and
     ``td = tpd * length`` (:func:`pinlib.physics.lines.from_per_length`).  A cable class
     with an impedance but no delay takes ``tpd = Z0 * C``; one with a capacitance only
-    is a lumped capacitance.  Validity warnings of the trace models propagate.
+    is a lumped capacitance.  A section's ``capacitance_factor`` ``k`` (a drawn board of
+    a bus's ``capacitance_tolerance``) scales its capacitance per length with its
+    inductance per length held (a dielectric or a width off nominal): ``C`` by ``k``,
+    ``Z0 = sqrt(L/C)`` by ``1/sqrt(k)`` and the delay ``sqrt(L C)`` by ``sqrt(k)``; a
+    lumped section's capacitance alone.  Validity warnings of the trace models
+    propagate.
     """
     out = []
     for s in sections:
-        if s.geometry is not None:
-            m = _geometry_model(s.geometry)
-            out.append(Stretch(s.length, float(m.z0), float(m.tpd) * s.length,
-                               float(m.c) * s.length, f"geometry {s.geometry.name}"))
-            continue
-        label = s.part_id or "stretches given per length"
-        c = float(s.capacitance)
-        tpd = s.delay
-        if tpd is None and s.impedance is not None:
-            tpd = float(s.impedance) * c
-        if tpd is None:
-            out.append(Stretch(s.length, math.nan, 0.0, c * s.length, label))
-            continue
-        m = tl.from_per_length(c, tpd)
-        z0 = float(s.impedance) if (s.impedance is not None and s.delay is not None
-                                    and s.part_id) else float(m.z0)
-        out.append(Stretch(s.length, z0, float(tpd) * s.length, c * s.length, label))
+        st = _stretch(s)
+        k = float(s.capacitance_factor)
+        if k != 1.0:  # C' scaled, L' held: Z0 = sqrt(L'/C'), tpd = sqrt(L'C')
+            r = math.sqrt(k)
+            st = Stretch(st.length, st.z0 / r, st.td * r, st.c * k, st.label)
+        out.append(st)
     return out
+
+
+def _stretch(s: Section) -> Stretch:
+    """One section's electrical data as stated (no capacitance factor)."""
+    if s.geometry is not None:
+        m = _geometry_model(s.geometry)
+        return Stretch(s.length, float(m.z0), float(m.tpd) * s.length,
+                       float(m.c) * s.length, f"geometry {s.geometry.name}")
+    label = s.part_id or "stretches given per length"
+    c = float(s.capacitance)
+    tpd = s.delay
+    if tpd is None and s.impedance is not None:
+        tpd = float(s.impedance) * c
+    if tpd is None:
+        return Stretch(s.length, math.nan, 0.0, c * s.length, label)
+    m = tl.from_per_length(c, tpd)
+    z0 = float(s.impedance) if (s.impedance is not None and s.delay is not None
+                                and s.part_id) else float(m.z0)
+    return Stretch(s.length, z0, float(tpd) * s.length, c * s.length, label)
 
 
 def line_model(stretches: Sequence[Stretch], edge_time: float, *,

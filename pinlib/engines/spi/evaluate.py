@@ -115,21 +115,14 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
         res.notes.append(f"highest clock: none, no clock satisfies {by_label}")
     elif math.isfinite(f_top):
         res.figure("max_clock", f_top, "Hz")
-        res.notes.append(f"highest clock {_fmt(f_top, 'Hz')}: what the timing budget and "
-                         f"the parts' f_max allow, set by {by_label}"
-                         + _assumed_clock_text(sa, by))
+        res.notes.append(clock_note(sa, f_top, by))
     else:  # no number to give: in words, never as infinity
         res.figure("max_clock", None, "Hz", reason=NO_CLOCK_LIMIT)
         res.notes.append(f"highest clock: {NO_CLOCK_LIMIT}")
     res.figure("max_clock_limited_by", by, "")
     res.figure("max_clock_edge_rule", f_edge, "Hz")
     if math.isfinite(f_edge):
-        # on a route the edges are each receiver's at its own point, not a far end's
-        edges = ("receiver's edge (at its own point of a route)"
-                 if any(la.net is not None for la in sa.lines.values()) else "far-end edge")
-        res.notes.append(f"highest clock by the edge rule of thumb {_fmt(f_edge, 'Hz')}: "
-                         f"every {edges} keeps within {EDGE_FRACTION * 100:.0f} % of the "
-                         f"period up to it (set by {edge_sig}); it warns, it does not limit")
+        res.notes.append(edge_rule_note(sa, f_edge, edge_sig))
     for fig, tid in MARGIN_FIGURES:
         # a figure without a number says why, in place of it (it read "—"); the notes
         # repeat a reason the checks do not give
@@ -141,6 +134,45 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
             reason = "none: a receiver never switches (see the checks)"
         res.figure(fig, worst.get(tid), "s", reason)
     return res
+
+
+def clock_note(sa: SpiAnalysis, f_top: float, by: str) -> str:
+    """The note of the figure ``max_clock`` on one board: the clock ``f_top`` and what
+    sets it (``by``, as ``"cipo-setup U2"``)."""
+    return (f"highest clock {_fmt(f_top, 'Hz')}: what the timing budget and the parts' "
+            f"f_max allow, set by {path_label(by)}" + _assumed_clock_text(sa, by))
+
+
+def clock_note_at_corner(sa: SpiAnalysis, low: float, by: str, nominal: float,
+                         by_nominal: str) -> str:
+    """:func:`clock_note` where a corner of the tolerances lowers the figure: the lowest
+    clock over the boards and what sets it there (``by``), the board as designed's
+    beside it (``nominal``, and ``by_nominal`` where it differs)."""
+    also = "" if by_nominal == by else f", set by {path_label(by_nominal)}"
+    return M.CLOCK_AT_WORST_CORNER.format(
+        low=_fmt(low, "Hz"), nominal=_fmt(nominal, "Hz"), nominal_by=also,
+        by=path_label(by)) + _assumed_clock_text(sa, by)
+
+
+def _edges_word(sa: SpiAnalysis) -> str:
+    # on a route the edges are each receiver's at its own point, not a far end's
+    return ("receiver's edge (at its own point of a route)"
+            if any(la.net is not None for la in sa.lines.values()) else "far-end edge")
+
+
+def edge_rule_note(sa: SpiAnalysis, f_edge: float, sig: str) -> str:
+    """The note of the figure ``max_clock_edge_rule`` on one board, set by line ``sig``."""
+    return (f"highest clock by the edge rule of thumb {_fmt(f_edge, 'Hz')}: every "
+            f"{_edges_word(sa)} keeps within {EDGE_FRACTION * 100:.0f} % of the period up "
+            f"to it (set by {sig}); it warns, it does not limit")
+
+
+def edge_rule_note_at_corner(sa: SpiAnalysis, low: float, nominal: float, sig: str) -> str:
+    """:func:`edge_rule_note` where a corner of the tolerances lowers the figure: the
+    lowest over the boards, the board as designed's (set by line ``sig``) beside it."""
+    return M.EDGE_RULE_AT_WORST_CORNER.format(
+        low=_fmt(low, "Hz"), nominal=_fmt(nominal, "Hz"), line=sig, edges=_edges_word(sa),
+        percent=f"{EDGE_FRACTION * 100:.0f}")
 
 
 def _assumed_clock_text(sa: SpiAnalysis, by: str) -> str:

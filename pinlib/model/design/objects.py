@@ -39,6 +39,11 @@ class Section:
     delay: float | None = None        # s/m
     impedance: float | None = None    # Ω, from a cable class
     part_id: str | None = None
+    #: a drawn board's capacitance per length over the stated one (a bus's
+    #: ``capacitance_tolerance`` at a corner or a Monte Carlo draw): the inductance per
+    #: length held, so Z0 moves by ``1/sqrt(k)`` and the delay by ``sqrt(k)``
+    #: (:func:`pinlib.engines.pushline.sections.stretches_of`); 1 as designed
+    capacitance_factor: float = 1.0
     #: where the design file writes it (``("bus", 0, "lines", "sclk", "route", 1)``): an
     #: error about the section names it; no part of its value (equality, hash)
     loc: tuple = field(default=(), compare=False, repr=False)

@@ -3,11 +3,16 @@
 from __future__ import annotations
 
 import math
+import warnings
 
 import numpy as np
 
+from pinlib.core import messages as M
+from pinlib.core.errors import ValidityWarning
+from pinlib.core.quantity import format_si
 from pinlib.physics.lines.model import ETA0, LineModel, _model, _wheeler_width
 from pinlib.physics.lines.validity import (
+    _COHN_SOURCE,
     _check_method,
     _geometry,
     _quantities,
@@ -115,7 +120,8 @@ def stripline(w, b, er, t=0.0, *, method: str = "wheeler") -> LineModel:
     -----
     ValidityWarning
         Outside the method's range (see :data:`VALIDITY`): ``w'/(b-t) < 10`` for Wheeler;
-        ``t = 0`` for Cohn (a thickness given is ignored); ``w/(b-t) < 0.35`` and
+        ``t = 0`` for Cohn (a thickness given is not counted: the warning names it and
+        gives Wheeler's Z0 with it); ``w/(b-t) < 0.35`` and
         ``t/b < 0.25`` for IPC-2141.
 
     Notes
@@ -150,8 +156,10 @@ def stripline(w, b, er, t=0.0, *, method: str = "wheeler") -> LineModel:
     integrals is computed exactly with the arithmetic-geometric mean,
     K(k)/K(k') = AGM(1, k)/AGM(1, k'); no scipy is needed. Above
     :math:`\\pi w/2b = 20` the ratio is :math:`\\pi/(2(\\pi w/2b + \\ln 2))` (K(k') = ln(4/k)
-    for small k), so a very wide strip keeps a positive Z0 where sech underflows. A
-    thickness given is ignored, with a warning.
+    for small k), so a very wide strip keeps a positive Z0 where sech underflows. No
+    thickness correction is applied: a thickness given is not counted (Z0 is the
+    zero-thickness strip's, higher than the thick strip's), and a warning names it with
+    Wheeler's Z0 for it.
 
     **IPC-2141**: :math:`Z_0 = \\frac{60}{\\sqrt{\\varepsilon_r}}\\ln\\frac{1.9b}{0.8w + t}`,
     quoted for w/(b - t) < 0.35 and t/b < 0.25. NaN where 1.9b <= 0.8w + t; a
@@ -183,4 +191,20 @@ def stripline(w, b, er, t=0.0, *, method: str = "wheeler") -> LineModel:
     w, b, er, t = _geometry("stripline", w, b, er, t, "b")
     _warn_outside("stripline", method, _quantities("stripline", w, b, er, t))
     z0, er_eff = _STRIPLINE_IMPL[method](w, b, er, t)
+    if method == "cohn" and np.any(t > 0):
+        _warn_cohn_thickness(w, b, er, t, z0)
     return _model(z0, er_eff)
+
+
+def _warn_cohn_thickness(w, b, er, t, z0) -> None:
+    """The warning for a thickness Cohn's zero-thickness formula cannot count: the first
+    such geometry's thickness, its Z0, and Wheeler's Z0 with the thickness beside it."""
+    thick = t > 0
+    i = np.flatnonzero(thick.reshape(-1))[0]
+    at = [np.asarray(x, dtype=float).reshape(-1)[i] for x in (w, b, er, t)]
+    z_w, _ = _wheeler_stripline(*at)
+    count = "" if t.size == 1 else f" (in {int(np.count_nonzero(thick))} of {t.size})"
+    warnings.warn(ValidityWarning(M.COHN_THICKNESS_IGNORED.format(
+        thickness=format_si(float(at[3]), "m"), count=count,
+        z0=format_si(float(np.asarray(z0, dtype=float).reshape(-1)[i]), "Ω"),
+        z0_wheeler=format_si(float(z_w), "Ω"), source=_COHN_SOURCE)), stacklevel=3)

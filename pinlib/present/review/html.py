@@ -221,7 +221,7 @@ class _Html:
         h = f"h{level}"
         if g.figures:
             self.w(f"<{h}>Figures</{h}>", f'<dl class="figs" aria-label="Figures of {_e(label)}">')
-            for name, value in figure_cells(g.figures):
+            for name, value in figure_cells(g.figures, g.checks):
                 # a number with its unit stays on one line; words (a figure's reason for
                 # having no number, "not computed (...)") wrap within the column
                 words = "" if value[:1].isdigit() or value[:1] in "+-−" else ' class="words"'

@@ -252,7 +252,8 @@ class _Markdown:
         if g.figures:
             self.w(f"{h} Figures", "")
             self.w(*_table(["Figure", "Value"],
-                           [[_m(label), _m(value)] for label, value in figure_cells(g.figures)]))
+                           [[_m(label), _m(value)]
+                            for label, value in figure_cells(g.figures, g.checks)]))
         if g.checks:
             # a table narrow enough to read as plain text, each row numbered; the findings
             # and the sources of the limits below it, under the same numbers

@@ -35,7 +35,7 @@ margin quantiles.  Memory so stays bounded (about 0.4 GB for 10^6 boards of the 
 and the boards are drawn from one stream in board order, so that no result depends
 on the chunk size; a run of at most :data:`SENSITIVITY_BOARDS` boards keeps every
 board as before.  Push-pull buses (SPI, GPIO) go through :func:`pinlib.engines.ppbatch.build`:
-supplies, line lengths and extra line capacitance drawn; a large batch is evaluated from
+supplies, line lengths and line board capacitance drawn; a large batch is evaluated from
 tables of the push-pull engine over the tolerance box, verified against the engine
 (:mod:`pinlib.engines.pptable`), a small one (and every corner) by the engine itself.
 
