@@ -4,6 +4,7 @@ exit codes."""
 from __future__ import annotations
 
 import json
+import re
 import subprocess
 import sys
 from pathlib import Path
@@ -443,7 +444,9 @@ def test_a_figure_without_a_number_says_why(capsys, monkeypatch):
         main(["check", str(path), "--detail"])
         out = capsys.readouterr().out
         assert "∞" not in out and "inf" not in out.split()
-        rows = [ln for ln in out.splitlines() if ln.strip().startswith(label + "  ")]
+        # a line's own figure ends its label with the line ("Rp(min), SDA")
+        rows = [ln for ln in out.splitlines()
+                if re.match(re.escape(label) + r"(, [A-Z]+)?  ", ln.strip())]
         assert any(why in ln for ln in rows), (path.name, rows)
         assert not any(ln.rstrip().endswith("—") for ln in rows), (path.name, rows)
 

@@ -311,11 +311,14 @@ def test_a_moved_10_90_rise_names_its_line(board):
     tr = figs[("sensors", "rise_time_sda")]
     assert one.new / tr.new == pytest.approx(math.log(9) / math.log(7 / 3), rel=1e-9)
     assert ("sensors", "rise_time_10_90_scl") not in figs  # SCL did not move
+    # so does each line's Rp(max), tr/(k·Cb): SDA's falls with its heavier pin
+    assert any(ln.strip().startswith("sensors: Rp(max), SDA ") for ln in text.splitlines())
     # a snapshot from before the lines gave their own 10–90 % rise: no "(new)" figures,
     # the segment's figure compared as it was
     for bus in old["buses"]:
-        for name in ("rise_time_10_90_sda", "rise_time_10_90_scl"):
-            bus["figures"].pop(name, None)
+        for name in ("rise_time_10_90", "rp_min", "rp_max"):
+            for sig in ("sda", "scl"):
+                bus["figures"].pop(f"{name}_{sig}", None)
     text = compare(old, new).format_text()
     assert "(new)" not in text
     assert [ln.strip()[:28] for ln in text.splitlines() if "10–90" in ln] == [

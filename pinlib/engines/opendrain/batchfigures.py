@@ -16,7 +16,8 @@ from pinlib.engines.opendrain.rules import SIGNALS
 #: The figures each line also gives under its own name (``rise_time_sda``): the ones a
 #: reader compares between SDA and SCL, or finds moved in one line (``pinlib check
 #: --against-snapshots`` names the line where it can).
-LINE_FIGURES = ("bus_capacitance", "rise_time", "rise_time_10_90", "fall_time", "pullup")
+LINE_FIGURES = ("bus_capacitance", "rp_min", "rp_max", "rise_time", "rise_time_10_90",
+                "fall_time", "pullup")
 
 
 def _reduce(fn, arrays):
