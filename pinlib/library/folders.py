@@ -79,6 +79,5 @@ def not_a_library_yet_note(folder: str, shown: str | None = None) -> str:
 
     line = json.dumps(str(folder).replace(os.sep, "/"), ensure_ascii=False)
     return (f"note: {shown or folder} is not a library folder yet: pass --library {folder} "
-            "or add "
-            f"it to PINLIB_LIBRARY, and write it in the library line of each design that "
-            f"places the part: library = [{line}] (relative to the design file)")
+            "or add it to PINLIB_LIBRARY, and write it in the library line of each design "
+            f"that places the part: library = [{line}] (relative to the design file)")
