@@ -401,7 +401,10 @@ def test_i2c_line_stays_a_choice_of_sda_and_scl(design, capsys):
     assert "argument --line: invalid choice: 'reset' (choose from 'sda', 'scl')" in err
     assert main(["measured", str(design), "--bus", "i2c0", "--line", "scl", "--rise",
                  "250ns", "--probe", "10pF"]) == 1
-    assert "segment i2c0, SCL" in capsys.readouterr().out
+    # a bus of one segment is named once: "bus i2c0, segment i2c0, SCL" named it twice,
+    # as if it had segments (an audit)
+    out = capsys.readouterr().out
+    assert out.startswith("bus i2c0, SCL: rise 250 ns") and "segment" not in out, out
 
 
 def test_gpio_contributions_split_traces_cables_and_extra(gpio_design, tmp_path):
@@ -462,6 +465,10 @@ def test_measurable_lines_name_each_segment_of_a_bridged_bus():
     assert bridged == [("main-3v3", "sda"), ("main-3v3", "scl"), ("sensor-1v8", "sda"),
                        ("sensor-1v8", "scl")]
     assert all(x.segment is None for x in offered if x.bus == "power")
+    # a bus of several segments names the segment the reading was taken on; one of a
+    # single segment does not (invented test data: the reading)
+    got = compare_rise(load_design(demo), "sensors", 300e-9, 10e-12, segment="sensor-1v8")
+    assert got.place() == "bus sensors, segment sensor-1v8, SDA"
 
 
 def test_rise_without_the_probe_is_kept_out_of_the_command(gpio_design):

@@ -591,10 +591,10 @@ def test_a_figure_without_a_number_says_why_under_the_table():
     r = cand.rank_candidates(d, "U2")
     text = r.format_text(width=80)
     flat = text.replace("\n  ", " ")
-    assert "— f(max): no clock satisfies CIPO setup U2 (" in flat
+    assert "— bus fmax: no clock satisfies CIPO setup U2 (" in flat
     # and the worst margin that does not exist says why too, first (its column is first)
     assert "— worst: CIPO never crosses the receiving input's threshold" in flat
-    assert flat.index("— worst:") < flat.index("— f(max):")
+    assert flat.index("— worst:") < flat.index("— bus fmax:")
     assert all(c.worst_check["reason"].startswith("CIPO never crosses")
                for c in r.candidates)
     doc = r.to_json()
@@ -604,7 +604,30 @@ def test_a_figure_without_a_number_says_why_under_the_table():
     # a figure with a number carries no reason, and the ranking compares as before
     demo = cand.rank_candidates(load_design(DEMO), "U12")
     assert "reason" not in demo.to_json()["candidates"][0]["figures"]["display"]["max_clock"]
-    assert "— f(max)" not in demo.format_text(width=80)
+    assert "— bus fmax" not in demo.format_text(width=80)
+
+
+def test_the_clock_column_says_it_is_the_buss_highest_clock_not_the_parts_own():
+    # an audit: the column headed "f(max)" read 20 MHz for every part at a flash's
+    # position, the bus's highest clock (another device set it), not the flash's own
+    # f_max (104 MHz); the head and a key line under the table now say which it is
+    r = cand.rank_candidates(DEMO_DESIGN, "U7")
+    text = r.format_text(width=80)
+    head = next(ln for ln in text.splitlines() if ln.startswith("#  part"))
+    assert head.split()[-2:] == ["bus", "fmax"] and "f(max)" not in text
+    flat = " ".join(text.split())
+    assert ("bus fmax: the highest clock the bus allows with that part, set by whichever "
+            "device limits it (not the part's own f_max)") in flat
+    assert all(len(ln) <= 80 for ln in text.splitlines())
+    flash = r.candidate("nor-flash-spi")
+    own = DEMO_DESIGN.library.get("nor-flash-spi").timing.f_max.value
+    # invented test data: the library's flash states 104 MHz, above the bus's limit
+    assert own == pytest.approx(104e6, rel=1e-12)
+    assert flash.figures["flash"]["max_clock"][0] < own
+    # where the column is left out, so is its key line
+    narrow = r.format_text(width=44)
+    assert "not shown at this width: bus fmax" in narrow
+    assert "bus fmax: the highest" not in narrow
 
 
 def test_a_lines_check_names_its_signal_as_pinlib_check_does():
@@ -639,7 +662,7 @@ def test_a_gpio_position_shows_each_buss_slowest_edge_not_a_clock():
         assert now.figures[bus]["worst_edge"][0] == pytest.approx(want, rel=1e-9)
         assert "max_clock" not in now.figures[bus]
     text = r.format_text(width=80)
-    assert "f(max)" not in text and "edge@reset" in text and "edge@fpga-enable" in text
+    assert "fmax" not in text and "edge@reset" in text and "edge@fpga-enable" in text
     assert all(len(ln) <= 80 for ln in text.splitlines())
     doc = r.to_json()
     assert doc["candidates"][0]["figures"]["reset"]["worst_edge"]["unit"] == "s"

@@ -142,3 +142,33 @@ def test_a_help_page_s_description_keeps_the_case_of_its_summary():
             told.append(words)
             assert first.startswith(summary[:1].upper() + summary[1:]), (words, first)
     assert ("pinlib", "parts") in told
+
+
+def test_corners_is_described_as_what_it_adds(monkeypatch, capsys):
+    # an audit: the help, docs/cli.md and the README said --corners would "also find each
+    # check's worst corner", but a plain check already takes every check at its worst
+    # corner ("checks at their worst corner: all 32 corners of 5 parameters"); --corners
+    # adds a list of the worst checks with the tolerances that set each corner
+    monkeypatch.setenv("COLUMNS", "80")
+    check = dict(_pages(build_parser()))[("pinlib", "check")]
+    helped = " ".join(check.format_help().split())
+    root = Path(__file__).resolve().parents[1]
+    pages = [" ".join((root / name).read_text(encoding="utf-8").split())
+             for name in ("docs/cli.md", "README.md")]
+    for text in [helped, *pages]:
+        assert "find each check's worst corner" not in text
+        assert "finds each check's worst corner" not in text
+        assert "already taken at its worst corner" in text
+    assert ("also list the checks at their worst corner of the tolerances (every check is "
+            "taken there without it), the worst first, each with the parameters and ends "
+            "that set its corner") in helped
+    # what the help says: the plain result's statuses are those at the worst corners
+    from pinlib.cli import main
+
+    demo = root / "workbooks" / "designs" / "demo-board.toml"
+    assert main(["check", str(demo), "--corners", "--json"]) in (0, 1)
+    import json
+
+    got = json.loads(capsys.readouterr().out)
+    rows = got["corners"]["checks"]
+    assert rows and all(r["status"] == r["worst_case_status"] for r in rows)

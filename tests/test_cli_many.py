@@ -97,6 +97,43 @@ def test_new_without_a_controller_says_who_stands_in_and_picks_a_common_rail(tmp
     assert "stands in" not in path2.read_text(encoding="utf-8")
 
 
+def test_new_names_each_part_whose_supply_range_excludes_its_bus_rail(tmp_path, capsys):
+    # an audit's first board: a 1.8 V microcontroller with a 3.3 V FPGA, flash and ADC
+    # went on one SPI bus at 1.8 V with no word but "check it"; 'pinlib check' then
+    # failed "Supply range U10".  Each such part is named with its range, in the file
+    # under the rail and in a note, on each bus it is on
+    path = tmp_path / "board.toml"
+    parts = ["U1=mcu-1v8", "U2=eeprom-i2c", "U3=rtc-i2c", "U4=temp-humidity-sensor",
+             "U10=fpga-io-3v3", "U11=nor-flash-spi", "U12=adc-spi"]
+    assert main(["new", str(path)] + [w for p in parts for w in ("--part", p)]) == 0
+    err = " ".join(capsys.readouterr().err.split())
+    text = path.read_text(encoding="utf-8")
+    flat = " ".join(" ".join(ln.removeprefix("#") for ln in text.splitlines()).split())
+    # invented test data: the ranges are the built-in parts' own (3.135 V to 3.465 V,
+    # 2.7 V to 3.6 V, 2.7 V to 5.5 V), none of which holds 1.8 V ± 5 %
+    fpga, flash, adc = ("U10 (3.135 V to 3.465 V)", "U11 (2.7 V to 3.6 V)",
+                        "U12 (2.7 V to 5.5 V)")
+    assert (f"note: bus i2c: its rail, 1.8 V ± 5 %, is outside the supply range of "
+            f"{fpga}, which 'pinlib check' fails") in err, err
+    assert (f"note: bus spi: its rail, 1.8 V ± 5 %, is outside the supply range of "
+            f"{fpga}, {flash} and {adc}, which 'pinlib check' fails") in err, err
+    assert "U2 (" not in err and "U4 (" not in err  # the parts that run from 1.8 V
+    assert flat.count("This rail, 1.8 V ± 5 %, is outside the supply range of") == 2
+    assert f"{fpga}, {flash} and {adc}" in flat
+    assert all(len(line) <= 80 for line in text.splitlines())
+    # the parts named are exactly those 'pinlib check' fails at their supply range
+    assert main(["check", str(path), "--json"]) == 1
+    got = json.loads(capsys.readouterr().out)
+    failed = {(b["id"], c["subject"]) for b in got["buses"] for c in b["checks"]
+              if c["id"] == "supply-range" and c["status"] == "fail"}
+    assert failed == {("i2c", "U10"), ("spi", "U10"), ("spi", "U11"), ("spi", "U12")}
+    # parts that all run from the rail: no such note
+    path2 = tmp_path / "two.toml"
+    assert main(["new", str(path2), "--part", "U1=mcu-3v3", "--part", "U2=nor-flash-spi"]) == 0
+    assert "supply range" not in capsys.readouterr().err
+    assert "supply range" not in path2.read_text(encoding="utf-8")
+
+
 def test_new_given_a_folder_says_it_is_one(tmp_path, capsys):
     # "pinlib new boards/" said "the file exists", as if a design were there
     assert main(["new", str(tmp_path), "--part", "U1=mcu-3v3", "--part", "U2=eeprom-i2c"]) == 2

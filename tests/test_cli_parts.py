@@ -510,7 +510,7 @@ def test_new_fits_its_lines_to_80_columns_and_the_next_command_still_pastes(
     nxt = out[out.index("next: "):].rstrip("\n")
     assert " \\\n    " in nxt
     assert nxt.replace(" \\\n    ", " ") == (
-        f'next: pinlib parts record {new_id} PIN.FIELD "VALUE" --source "..." '
+        f'next: pinlib parts record {new_id} sda.c_in "VALUE" --source "..." '
         "--library other")
     # in a pipe (no COLUMNS, not a terminal) each stays one line
     monkeypatch.delenv("COLUMNS")
@@ -569,6 +569,23 @@ def test_new_defaults_to_the_first_library_folder(lib, capsys, monkeypatch, tmp_
     monkeypatch.setenv("PINLIB_LIBRARY", str(other))
     code, out, _ = run(capsys, "parts", "new", "x2", "--from", "base")
     assert code == 0 and (other / "x2.toml").exists()
+
+
+def test_new_into_a_folder_no_library_holds_names_the_design_library_line(lib, capsys):
+    # the note said "pass --library team-parts or add it to PINLIB_LIBRARY", neither of
+    # which a design reads: a design finds a team part through its own library line
+    code, _, err = run(capsys, "parts", "new", "x3", "--from", "base", "--into",
+                       "team-parts", "--source", "invented rev A")
+    assert code == 0
+    said = " ".join(err.split())
+    assert ("note: team-parts is not a library folder yet: pass --library team-parts or add "
+            "it to PINLIB_LIBRARY, and write it in the library line of each design that "
+            'places the part: library = ["team-parts"] (relative to the design file)') \
+        in said, said
+    # a folder the library already holds: no note
+    code, _, err = run(capsys, "parts", "new", "x4", "--from", "base", "--into", "team",
+                       "--library", "team", "--source", "invented rev A")
+    assert code == 0 and "library line" not in err
 
 
 def test_show_an_id_in_capitals_names_the_closest(lib, capsys):
@@ -909,12 +926,13 @@ def test_check_keeps_a_long_path_whole_on_a_line_of_its_own(lib, capsys, tmp_pat
 
 
 @pytest.mark.parametrize(("cls", "field"), [
-    ("ribbon-cable", "line.capacitance"), ("i2c-repeater", "sides.a.PIN.FIELD"),
-    ("eeprom-i2c", "PIN.FIELD")])
+    ("ribbon-cable", "line.capacitance"), ("i2c-repeater", "sides.a.sda.c_in"),
+    ("eeprom-i2c", "sda.c_in"), ("i2c-peripheral", "sda.c_in")])
 def test_new_names_a_field_the_class_has_as_the_next_step(tmp_path, monkeypatch, capsys,
                                                           cls, field):
     # a cable has no pins: its next step read "pinlib parts record x PIN.FIELD ...", and
-    # so did the comment the new file opens with
+    # so did the comment the new file opens with; a part with pins read the literal
+    # PIN.FIELD too, where a field it has (its first pin's c_in) pastes as it is
     monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
     monkeypatch.setenv("COLUMNS", "80")
     code, out, _ = run(capsys, "parts", "new", "x-part", "--from", cls, "--into",
@@ -924,10 +942,11 @@ def test_new_names_a_field_the_class_has_as_the_next_step(tmp_path, monkeypatch,
     assert all(len(line) <= 80 for line in out.splitlines())
     text = (tmp_path / "x-part.toml").read_text(encoding="utf-8")
     assert f'#   pinlib parts record x-part {field} "VALUE"' in text
-    if field == "line.capacitance":  # the step it names is one that works
-        code, out, err = run(capsys, "parts", "record", "x-part", field, "60 pF/m",
-                             "--source", "invented rev A", "--library", str(tmp_path))
-        assert code == 0, err
+    # the step it names is one that works (invented test data)
+    value = "60 pF/m" if field == "line.capacitance" else "5 pF"
+    code, out, err = run(capsys, "parts", "record", "x-part", field, value,
+                         "--source", "invented rev A", "--library", str(tmp_path))
+    assert code == 0, err
 
 
 def test_check_lists_what_the_first_problems_of_a_part_hide(lib, capsys):

@@ -280,6 +280,51 @@ def test_change_list_json_round_trips(board):
 # ---------------------------------------------------------------- snapshots
 
 
+SDA_ONLY = """\
+format = "pinlib.part/1"
+id = "eeprom-sda-heavy"
+title = "Test EEPROM with a heavier SDA pin only (invented)"
+category = "memory"
+extends = "eeprom-i2c"
+provenance = { basis = "estimate", source = "invented test class" }
+
+[pins.sda]
+c_in = { value = "30 pF", basis = "estimate", source = "test: heavier SDA (invented)" }
+"""
+
+
+def test_a_moved_10_90_rise_names_its_line(board):
+    # an audit: after an SDA pin's c_in changed, the change list read "sensors: Rise
+    # time, 10–90 % ... → ..." with no line, where its neighbours read ", SDA": the
+    # 10–90 % rise was a figure of the segment only.  Each line now gives its own
+    _write(board.parent / "team", "eeprom-sda-heavy.toml", SDA_ONLY)
+    design = load_design(board)
+    swapped = design.with_parts({"U4": "eeprom-sda-heavy"})
+    old, new = snapshot(design, check_design(design)), snapshot(swapped, check_design(swapped))
+    text = compare(old, new).format_text()
+    shown = [ln.strip() for ln in text.splitlines() if "10–90" in ln]
+    assert len(shown) == 1 and shown[0].startswith("sensors: Rise time, 10–90 %, SDA "), text
+    figs = {(f.path, f.name): f for f in compare(old, new).figure_changes}
+    one = figs[("sensors", "rise_time_10_90_sda")]
+    # derived: tr(10-90 %) = ln 9·Rp·Cb on one line, Rp and Cb as its own 30-70 % rise
+    # (UM10204 rev. 6 §7.1 eq. 1 gives tr(30-70 %) = ln(7/3)·Rp·Cb)
+    tr = figs[("sensors", "rise_time_sda")]
+    assert one.new / tr.new == pytest.approx(math.log(9) / math.log(7 / 3), rel=1e-9)
+    assert ("sensors", "rise_time_10_90_scl") not in figs  # SCL did not move
+    # so does each line's Rp(max), tr/(k·Cb): SDA's falls with its heavier pin
+    assert any(ln.strip().startswith("sensors: Rp(max), SDA ") for ln in text.splitlines())
+    # a snapshot from before the lines gave their own 10–90 % rise: no "(new)" figures,
+    # the segment's figure compared as it was
+    for bus in old["buses"]:
+        for name in ("rise_time_10_90", "rp_min", "rp_max"):
+            for sig in ("sda", "scl"):
+                bus["figures"].pop(f"{name}_{sig}", None)
+    text = compare(old, new).format_text()
+    assert "(new)" not in text
+    assert [ln.strip()[:28] for ln in text.splitlines() if "10–90" in ln] == [
+        "sensors: Rise time, 10–90 % "]
+
+
 def test_snapshot_path_beside_the_design():
     assert snapshot_path(Path("boards/demo-board.toml")) == Path("boards/demo-board.result.json")
     assert snapshot_path("x/board") == Path("x/board.result.json")

@@ -273,9 +273,14 @@ def test_a_rise_the_leakage_never_completes_has_no_figure(tmp_path):
     assert fig(res, "rise_time") is not None and fig(res, "scl_frequency_effective")
     f = res.figures["rise_time_10_90"]
     assert f.value is None and "never rises to 2.97 V" in f.reason and "2.82 V" in f.reason
+    # and so has each line's own 10–90 % rise, naming its line
+    for sig in ("sda", "scl"):
+        f = res.figures[f"rise_time_10_90_{sig}"]
+        assert f.value is None and f"{sig.upper()} never rises to 2.97 V" in f.reason
     # with 10 kΩ it stops at 0.29 V: no rise, clock or setup figure worked from tr
     res = _leaky_bus(tmp_path / "b", "10 kΩ")
     for name in ("rise_time", "rise_time_10_90", "rise_time_sda", "rise_time_scl",
+                 "rise_time_10_90_sda", "rise_time_10_90_scl",
                  "scl_frequency_effective", "sda_setup_margin"):
         f = res.figures[name]
         assert f.value is None and "leakage" in f.reason, name

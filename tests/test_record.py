@@ -465,7 +465,7 @@ def test_a_new_part_file_fits_80_columns(lib_dirs, new_id):
     command = comments[at:at + 1 + sum(x.endswith(" \\") for x in comments[at:])]
     assert len(command) >= 2 and all(x.endswith(" \\") for x in command[:-1])
     assert " ".join(x[1:].strip(" \\") for x in command) == (
-        f'pinlib parts record {new_id} PIN.FIELD "VALUE" --source "document, revision, table"')
+        f'pinlib parts record {new_id} sda.c_in "VALUE" --source "document, revision, table"')
 
 
 def test_new_part_refusals(lib_dirs, tmp_path):

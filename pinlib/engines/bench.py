@@ -143,6 +143,9 @@ class BenchComparison:
         The reading's Cb outside what a board's bus can hold (:data:`CB_MIN`,
         :data:`CB_UNMODELLED_MAX`, rules of thumb): each a check of status ``warn``,
         its bound and basis in ``source`` and its message (the verdict is unchanged).
+    one_segment : bool
+        The line's bus is an open-drain bus of one segment: the text names no segment
+        (the segment's id is the bus's own), the JSON still gives it.
     """
 
     bus: str
@@ -164,12 +167,15 @@ class BenchComparison:
     notes: list = field(default_factory=list)
     rise_alone: float | None = None
     warnings: list = field(default_factory=list)
+    one_segment: bool = False
 
     def place(self) -> str:
-        """Where the reading was taken: ``bus reset, line reset`` or ``bus i2c0, segment
-        i2c0, SDA``."""
-        return f"bus {self.bus}, " + (f"line {self.signal}" if self.segment is None else
-                                      f"segment {self.segment}, {self.signal.upper()}")
+        """Where the reading was taken: ``bus reset, line reset``, ``bus i2c0, SDA`` (a
+        bus of one segment, which its id names) or ``bus sense, segment sense-2, SDA``."""
+        if self.segment is None:
+            return f"bus {self.bus}, line {self.signal}"
+        seg = "" if self.one_segment else f"segment {self.segment}, "
+        return f"bus {self.bus}, {seg}{self.signal.upper()}"
 
     def verdict_text(self) -> str:
         """The verdict as a sentence (the revisit list follows it)."""
@@ -282,7 +288,8 @@ def compare_rise(design: Design, bus_id: str, rise: float, c_probe: float, *,
                            (float(lo), float(hi)), float(rp), tol, float(cb), cb_low, cb_high,
                            model, parts, verdict, revisit, protocol=bus.protocol,
                            notes=list(got.notes), rise_alone=float(alone),
-                           warnings=_implausible(float(cb), model, rp))
+                           warnings=_implausible(float(cb), model, rp),
+                           one_segment=is_open_drain(bus.protocol) and len(bus.segments) == 1)
 
 
 def _implausible(cb: float, model: float, rp: float) -> list[Check]:

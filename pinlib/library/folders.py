@@ -68,3 +68,16 @@ def team_folders_hint(given: Iterable[str | os.PathLike] = (), *,
     if designs is None:
         return f"{text}; {M.DESIGN_LIBRARY_NOT_READ}"
     return f"{text}, {M.DESIGN_LIBRARIES_READ.format(n=designs)}"
+
+
+def not_a_library_yet_note(folder: str, shown: str | None = None) -> str:
+    """The note of a command that wrote a part into ``folder`` (as the user named it;
+    ``shown``: as the note names it, default the same), which no library folder given
+    holds: how the next commands read it (``--library``, ``PINLIB_LIBRARY``) and how a
+    design finds it (its ``library`` line, the only way)."""
+    import json
+
+    line = json.dumps(str(folder).replace(os.sep, "/"), ensure_ascii=False)
+    return (f"note: {shown or folder} is not a library folder yet: pass --library {folder} "
+            "or add it to PINLIB_LIBRARY, and write it in the library line of each design "
+            f"that places the part: library = [{line}] (relative to the design file)")

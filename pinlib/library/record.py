@@ -217,9 +217,10 @@ def new_part(library: loader.Library, new_id: str, from_class: str,
 
 def field_example(part) -> str:
     """The FIELD a ``pinlib parts record`` of a part extending ``part`` would name, as its
-    next step says it: ``line.capacitance`` for a cable class (it has no pins),
-    ``sides.a.PIN.FIELD`` for a bridging part, ``timing.FIELD`` for a part with no pins,
-    else ``PIN.FIELD``.
+    next step says it: a field the class has, ready to paste: ``line.capacitance`` for a
+    cable class (it has no pins), ``sides.a.sda.c_in`` for a bridging part (its first
+    side's first pin), ``timing.f_max`` for a part with no pins, else its first pin's
+    input capacitance (``sda.c_in``).
 
     Parameters
     ----------
@@ -229,15 +230,17 @@ def field_example(part) -> str:
     Returns
     -------
     str
-        The field, with placeholders in capitals.
+        The field, as ``pinlib parts record`` reads it.
     """
     if part.line is not None or part.category == "cable":
         return "line.capacitance"
     if part.sides:
-        return f"sides.{sorted(part.sides)[0]}.PIN.FIELD"
+        side = sorted(part.sides)[0]
+        pins = list(part.sides[side].pins)
+        return f"sides.{side}.{pins[0]}.c_in" if pins else "timing.f_max"
     if not part.pins:
-        return "timing.FIELD"
-    return "PIN.FIELD"
+        return "timing.f_max"
+    return f"{next(iter(part.pins))}.c_in"
 
 
 def _provenance_lines(basis: str, source: str, today: _dt.date) -> list[str]:

@@ -15,7 +15,10 @@ than guessed.  The values
 written (rail, trace, clock) are placeholders a designer replaces; the file says so
 beside each one, and it loads and checks as it is, except where no part given drives a
 bus's clock: the first part then stands in as its controller, which the file and the
-command's note say ``pinlib check`` refuses until the part that drives it is added.
+command's note say ``pinlib check`` refuses until the part that drives it is added.  A
+part whose supply range excludes its bus's rail (± :data:`RAIL_TOLERANCE`) stays on the
+bus, named with its range in a comment under the rail and in a note: ``pinlib check``
+fails it there, and only the designer knows its rail or translator.
 """
 
 from __future__ import annotations
@@ -116,9 +119,9 @@ def _supply(part) -> float:
     return common[0] if common else round((s.min.value + s.max.value) / 2, 2)
 
 
-def _rail_name(segment: list[str]) -> str:
-    """A segment's id from its rail line (``supply = "1.8 V"`` gives ``1v8``)."""
-    volts = segment[0].split('"')[1].removesuffix(" V")
+def _rail_name(rail: float) -> str:
+    """A segment's id from its rail (1.8 V gives ``1v8``)."""
+    volts = format_si(rail, "V").removesuffix(" V")
     return volts.replace(".", "v") if "." in volts else volts + "v"
 
 
@@ -143,19 +146,61 @@ def _device_lines(members, controller, pin: str | None = None) -> list[str]:
     return out
 
 
+#: The tolerance the starter writes beside each rail (``supply_tolerance``): a placeholder,
+#: common practice, no source.
+RAIL_TOLERANCE = 0.05
+
+
+def _off_rail(members, rail: float) -> list[str]:
+    """``U10 (3.135 V to 3.465 V)`` for each of ``members`` ((placement, part) pairs)
+    whose stated supply range does not hold the whole of ``rail`` ± :data:`RAIL_TOLERANCE`:
+    the parts ``pinlib check`` fails at their supply range on the rail as written."""
+    lo, hi = rail * (1 - RAIL_TOLERANCE), rail * (1 + RAIL_TOLERANCE)
+    slack = 1e-9  # 1.8 V x 0.95 is 1.71 V less a unit in the last place
+    out = []
+    for pl, p in members:
+        s = p.supply
+        if s is None or p.sides:
+            continue
+        if lo < s.min.value * (1 - slack) or hi > s.max.value * (1 + slack):
+            out.append(f"{pl.ref} ({format_si(s.min.value, 'V', 4)} to "
+                       f"{format_si(s.max.value, 'V', 4)})")
+    return out
+
+
+def _off_rail_lines(where: str, members, rail: float, notes) -> list[str]:
+    """Comment lines naming the parts of ``members`` whose supply range excludes
+    ``rail`` (none when all run from it); the same said in ``notes`` of ``where`` (a bus
+    or segment)."""
+    off = _off_rail(members, rail)
+    if not off:
+        return []
+    band = f"{format_si(rail, 'V')} ± {RAIL_TOLERANCE * 100:g} %"
+    fix = "give it a rail it runs from" if len(off) == 1 else "give them a rail they run from"
+    said = (f"outside the supply range of {and_list(off)}, which 'pinlib check' fails: "
+            f"{fix}")
+    if notes is not None:
+        notes.append(f"{where}: its rail, {band}, is {said}, or choose parts for this rail")
+    return wrap(f"This rail, {band}, is {said} (supply = \"...\" on the device, with level "
+                "translation where the I/O differs), or choose parts for this rail.",
+                WIDTH, "# ", "")
+
+
 def _on_rail(part, rail: float) -> bool:
     """Whether ``part`` runs from ``rail`` (a part that states no supply is taken to)."""
     s = part.supply
     return s is None or s.min.value <= rail <= s.max.value
 
 
-def _open_drain_rail(members, ctrl, bridge=None) -> list[str]:
+def _open_drain_rail(members, ctrl, bridge=None, where: str = "", notes=None) -> list[str]:
     """The rail, pull-ups, trace and devices of an open-drain bus or segment; ``bridge``:
-    (placement, side) of a bridging part on it."""
+    (placement, side) of a bridging part on it; ``where``: the bus or segment, as
+    ``notes`` name it."""
     parts = dict((pl.ref, p) for pl, p in members)
     rail = _supply(parts[ctrl.ref]) if ctrl is not None else _supply(members[0][1])
     out = [_noted(f'supply = "{format_si(rail, "V")}"', "the rail of the pull-ups: check it"),
-           'supply_tolerance = "5 %"',
+           *_off_rail_lines(where, members, rail, notes),
+           f'supply_tolerance = "{RAIL_TOLERANCE * 100:g} %"',
            _noted('pullup = "auto"', 'or a value, e.g. "4.7 kΩ"'),
            'pullup_tolerance = "1 %"',
            'pullup_series = "E24"',
@@ -169,11 +214,13 @@ def _open_drain_rail(members, ctrl, bridge=None) -> list[str]:
     return out
 
 
-def _segments(members, ctrl, bridge) -> list[list[str]] | None:
-    """The two segments of an open-drain bus across a bridging part (``bridge``: its
-    placement and part): the controller's rail and the parts that run from it, and
-    the parts that do not, on the rail of the first of them; None when every part
-    runs from the controller's rail (nothing says where the bridge goes)."""
+def _segments(members, ctrl, bridge, bus_id: str,
+              notes=None) -> list[tuple[str, list[str]]] | None:
+    """The two segments of an open-drain bus ``bus_id`` across a bridging part
+    (``bridge``: its placement and part), each its id and lines: the controller's rail
+    and the parts that run from it, and the parts that do not, on the rail of the first
+    of them; None when every part runs from the controller's rail (nothing says where
+    the bridge goes).  ``notes``: as :func:`_off_rail_lines` fills them."""
     parts = dict((pl.ref, p) for pl, p in members)
     rail = _supply(parts[ctrl.ref])
     here = [(pl, p) for pl, p in members if _on_rail(p, rail)]
@@ -185,7 +232,11 @@ def _segments(members, ctrl, bridge) -> list[list[str]] | None:
     pl, part = bridge
     low, high = sorted(part.sides, key=lambda k: (part.sides[k].supply.min.value, k))
     near, far = (high, low) if rail > far_rail else (low, high)
-    return [_open_drain_rail(here, ctrl, (pl, near)), _open_drain_rail(there, None, (pl, far))]
+    names = f"near-{_rail_name(rail)}", f"far-{_rail_name(far_rail)}"
+    return [(names[0], _open_drain_rail(here, ctrl, (pl, near),
+                                        f"bus {bus_id}, segment {names[0]}", notes)),
+            (names[1], _open_drain_rail(there, None, (pl, far),
+                                        f"bus {bus_id}, segment {names[1]}", notes))]
 
 
 def _bus(group, members, bridges=(), notes=None) -> tuple[list[str], bool]:
@@ -197,7 +248,7 @@ def _bus(group, members, bridges=(), notes=None) -> tuple[list[str], bool]:
     stand_in = ctrl is None
     ctrl = ctrl or members[0][0]
     ctrl_part = dict((pl.ref, p) for pl, p in members)[ctrl.ref]
-    supply = format_si(_supply(ctrl_part), "V")
+    rail = _supply(ctrl_part)
     others = [p.name for p in group[1:]]
     kind = f'protocol = "{proto.name}"'
     refs = ", ".join(pl.ref for pl, _ in members)
@@ -218,20 +269,21 @@ def _bus(group, members, bridges=(), notes=None) -> tuple[list[str], bool]:
     if proto.open_drain:
         out += [f"# mode: I2C {_choices(I2C_MODE_NAMES)}; SMBus {_choices(SMBUS_CLASS_NAMES)}",
                 'mode = "standard"', 'clock = "100 kHz"']
-        segments = _segments(members, ctrl, bridges[0]) if len(bridges) == 1 else None
+        segments = (_segments(members, ctrl, bridges[0], proto.name, notes)
+                    if len(bridges) == 1 else None)
         if segments is None:
-            return out + _open_drain_rail(members, ctrl), False
-        for (name, seg), first in zip((("near", segments[0]), ("far", segments[1])),
-                                      (True, False), strict=True):
+            return out + _open_drain_rail(members, ctrl, None, f"bus {proto.name}",
+                                          notes), False
+        for (name, seg), first in zip(segments, (True, False), strict=True):
             where = ("the controller's rail" if first
                      else f"the parts across {bridges[0][0].ref}")
-            out += ["", f"# Segment: {where}.", "[[bus.segment]]",
-                    f'id = "{name}-{_rail_name(seg)}"'] + seg
+            out += ["", f"# Segment: {where}.", "[[bus.segment]]", f'id = "{name}"'] + seg
         return out, True
     out += [_spi_mode_line([p for _, p in members]),
             _noted('clock = "1 MHz"', "placeholder: the clock you intend"),
-            _noted(f'supply = "{supply}"', "the rail of the I/O: check it"),
-            'supply_tolerance = "5 %"']
+            _noted(f'supply = "{format_si(rail, "V")}"', "the rail of the I/O: check it"),
+            *_off_rail_lines(f"bus {proto.name}", members, rail, notes),
+            f'supply_tolerance = "{RAIL_TOLERANCE * 100:g} %"']
     out += _device_lines(members, ctrl)
     # the design format's documents are not in an installed wheel: the comment shows
     # the form of a route itself
@@ -278,8 +330,9 @@ def _gpio_nets(placed) -> list[tuple[str, list]]:
             and any(x[2].drive == "input" for x in pins)]
 
 
-def _gpio_bus(name: str, pins: list, taken: set[str]) -> list[str]:
-    """A GPIO bus of one line: the pins of ``name``, the first output driving it."""
+def _gpio_bus(name: str, pins: list, taken: set[str], notes=None) -> list[str]:
+    """A GPIO bus of one line: the pins of ``name``, the first output driving it;
+    ``notes``: as :func:`_off_rail_lines` fills them."""
     driver = next(x for x in pins if x[2].drive != "input")
     members = [driver] + [x for x in pins if x is not driver]
     bus_id = name if name not in taken else f"{name}-gpio"
@@ -289,7 +342,9 @@ def _gpio_bus(name: str, pins: list, taken: set[str]) -> list[str]:
            "[[bus]]", f"id = {_toml_string(bus_id)}", 'protocol = "gpio"',
            _noted(f'supply = "{format_si(_supply(driver[1]), "V")}"',
                   "the rail of the I/O: check it"),
-           'supply_tolerance = "5 %"']
+           *_off_rail_lines(f"bus {bus_id}", [(pl, p) for pl, p, _ in members],
+                            _supply(driver[1]), notes),
+           f'supply_tolerance = "{RAIL_TOLERANCE * 100:g} %"']
     out += _device_lines([(pl, p) for pl, p, _ in members], driver[0], pin=name)
     line = f'lines.{toml_key(name)} = {{ length = "5 cm", geometry = "outer"'
     if open_drain:
@@ -318,7 +373,9 @@ def starter_text(title: str, placed: list[tuple[Placement, object]],
     notes : list of str, optional
         Filled with what the reader should know about the file written: a part that
         stands in as a bus's controller, since no part given drives its clock (the
-        design loader refuses it until the part that does is added).
+        design loader refuses it until the part that does is added); the parts whose
+        supply range excludes the rail of their bus or segment (the controller's, or
+        the first part's), which ``pinlib check`` fails.
 
     Returns
     -------
@@ -355,7 +412,7 @@ def starter_text(title: str, placed: list[tuple[Placement, object]],
     taken = set(protocols.PROTOCOLS)  # a bus named like a protocol's would read oddly
     wired = set()
     for name, pins in _gpio_nets(placed):
-        out += _gpio_bus(name, pins, taken)
+        out += _gpio_bus(name, pins, taken, notes)
         taken.add(name)
         buses += 1
         wired |= {(pl.ref, name) for pl, _, _ in pins}

@@ -89,6 +89,21 @@ FIGURES = {
 }
 
 
+#: Column heads of the ranking's table where the figure's short label would mislead, with
+#: the key line under the table that says what the column is.  ``max_clock`` is the bus's
+#: highest clock with the candidate in place, which any device may set (another device's
+#: 20 MHz read as the candidate's own f(max) beside a 104 MHz flash).
+COLUMN_HEADS = {"max_clock": ("bus fmax", "bus fmax: the highest clock the bus allows with "
+                                          "that part, set by whichever device limits it "
+                                          "(not the part's own f_max)")}
+
+
+def column_head(name: str) -> str:
+    """The ranking table's head of figure ``name`` (:data:`COLUMN_HEADS`, else its short
+    label)."""
+    return COLUMN_HEADS[name][0] if name in COLUMN_HEADS else short_label(name)
+
+
 def bus_figures(protocol: str) -> tuple:
     """The figures :data:`FIGURES` shows for a bus of this protocol."""
     if protocol in OPEN_DRAIN_PROTOCOLS:
@@ -290,8 +305,8 @@ class Ranking:
             fig_cols = []
             for b in self.buses:
                 for name, unit in bus_figures(b["protocol"]):
-                    fig_cols.append((b["bus"], name, unit, f"{short_label(name)}@{b['bus']}"
-                                     if multi else short_label(name)))
+                    fig_cols.append((b["bus"], name, unit, f"{column_head(name)}@{b['bus']}"
+                                     if multi else column_head(name)))
             head = ["#", "part", "status", "worst", "set by"] + [c[3] for c in fig_cols]
             rows, blanks = [], {}
             for i, c in enumerate(shown, 1):
@@ -316,6 +331,11 @@ class Ranking:
             if len(shown) < len(self.candidates):
                 lines.append(f"… {len(self.candidates) - len(shown)} more (--top N)")
             lines.append("* the part in the design now")
+            shown_cols = {n for _, n, _, label in fig_cols if label not in dropped}
+            for name in COLUMN_HEADS:
+                if name in shown_cols:
+                    key = COLUMN_HEADS[name][1]
+                    lines += [key] if width is None else wrap(key, width, subsequent="  ")
             # each "—" without a number, in the order of the columns: why
             worst_blanks: dict = {}
             for c in shown:

@@ -21,9 +21,11 @@ examples:
   pinlib check board.toml --library ~/team-parts --library ./parts
   pinlib check board.toml --save         # keep board.result.json as reference
   pinlib check board.toml --threshold 2% # later: what changed against it
-  pinlib check board.toml --corners      # the worst corner of each check
+  pinlib check board.toml --corners      # which tolerances set each worst case
   pinlib check board.toml --monte-carlo 100000 --seed 7  # yield over tolerances
 
+Every check is already taken at its worst corner of the tolerances; --corners adds a
+list of the worst checks, each with the parameters (and their ends) that set its corner.
 --corners and --monte-carlo cover I2C, SMBus, SPI and GPIO buses: every tolerance (rails,
 pull-ups, series resistors, capacitance_tolerance, length_tolerance) at its ends, or
 drawn at random (uniform, or normal with the tolerance at 3 sigma when the design says
@@ -69,8 +71,10 @@ def add_parser(sub) -> None:
                    help="list figures that moved more than this against the saved result, "
                         "and margins that moved more than this many points (default 5%%)")
     p.add_argument("--corners", action="store_true",
-                   help="also find each check's worst corner of the tolerances "
-                        "(I2C, SMBus, SPI, GPIO)")
+                   help="also list the checks at their worst corner of the tolerances "
+                        "(every check is taken there without it), the worst first, each "
+                        "with the parameters and ends that set its corner (I2C, SMBus, "
+                        "SPI, GPIO); statuses and exit status unchanged"),
     p.add_argument("--monte-carlo", metavar="N", type=samples_type, default=None,
                    dest="monte_carlo",
                    help="also draw N boards within the tolerances and report each check's "

@@ -565,8 +565,10 @@ def _run_new(args) -> int:
               file=sys.stderr)
     known = [f.resolve() for f in lib.folders]
     if folder.resolve() not in known:
-        print(fitted(f"note: {_rel(folder)} is not a library folder yet: pass --library "
-                     f"{folder} or add it to PINLIB_LIBRARY", sys.stderr), file=sys.stderr)
+        from pinlib.library.folders import not_a_library_yet_note
+
+        print(fitted(not_a_library_yet_note(str(folder), _rel(folder)), sys.stderr),
+              file=sys.stderr)
     print(fitted_command("next:", ["pinlib", "parts", "record", args.id,
                                    field_example(lib.get(args.from_class)),
                                    '"VALUE"', '--source "..."']

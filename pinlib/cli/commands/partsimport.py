@@ -140,6 +140,7 @@ def run_import(args, load_library, default_folder) -> int:
     print(fitted(f"created {path} from [Component] {args.component} of {args.file}"))
     known = [f.resolve() for f in lib.folders]
     if folder.resolve() not in known:
-        print(fitted(f"note: {folder} is not a library folder yet: pass --library {folder} "
-                     "or add it to PINLIB_LIBRARY", sys.stderr), file=sys.stderr)
+        from pinlib.library.folders import not_a_library_yet_note
+
+        print(fitted(not_a_library_yet_note(str(folder)), sys.stderr), file=sys.stderr)
     return 0

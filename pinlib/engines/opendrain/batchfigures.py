@@ -13,6 +13,12 @@ from pinlib.engines.opendrain.batchresult import _Out
 from pinlib.engines.opendrain.explain import _WORST
 from pinlib.engines.opendrain.rules import SIGNALS
 
+#: The figures each line also gives under its own name (``rise_time_sda``): the ones a
+#: reader compares between SDA and SCL, or finds moved in one line (``pinlib check
+#: --against-snapshots`` names the line where it can).
+LINE_FIGURES = ("bus_capacitance", "rp_min", "rp_max", "rise_time", "rise_time_10_90",
+                "fall_time", "pullup")
+
 
 def _reduce(fn, arrays):
     """The element-wise maximum (``fn`` = ``np.max``) or minimum (``np.min``) of arrays
@@ -43,7 +49,7 @@ def _figures(s: _Seg, figs: dict, out: _Out) -> dict:
         vals = [np.asarray(figs[sig][name], dtype=float).reshape(-1, 1) for sig in SIGNALS
                 if figs[sig].get(name) is not None]
         res[name] = col(_reduce(np.max if pick is max else np.min, vals)) if vals else None
-    for name in ("bus_capacitance", "rise_time", "fall_time", "pullup"):
+    for name in LINE_FIGURES:
         for sig in SIGNALS:
             res[f"{name}_{sig}"] = col(figs[sig].get(name))
     res["supply"] = col(s.seg.supply)
@@ -76,7 +82,7 @@ def _figures_one(s: _Seg, figs: dict) -> dict:
         for x in vals[1:]:
             worst = _worse(pick, worst, x)
         res[name] = worst
-    for name in ("bus_capacitance", "rise_time", "fall_time", "pullup"):
+    for name in LINE_FIGURES:
         for sig in SIGNALS:
             res[f"{name}_{sig}"] = one(figs[sig].get(name))
     res["supply"] = float(s.seg.supply)

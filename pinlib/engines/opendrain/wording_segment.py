@@ -109,6 +109,11 @@ def _unrisen_figures(grp: Group, w: Words) -> None:
             if held < level and name not in worst:
                 worst[name] = RISE_NONE.format(line=up, level=_f(level, "V"),
                                                held=_f(held, "V"))
+        if held < 0.9 * vdd:  # the line's own 10–90 % rise
+            f = grp.figures.get(f"rise_time_10_90_{sig}")
+            if f is not None and f.value is not None:
+                grp.figure(f"rise_time_10_90_{sig}", None, f.unit, RISE_NONE.format(
+                    line=up, level=_f(0.9 * vdd, "V"), held=_f(held, "V")))
         if held < v_hi:
             why = RISE_NONE.format(line=up, level=_f(v_hi, "V"), held=_f(held, "V"))
             follows = {"sda": "sda_setup_margin", "scl": "scl_frequency_effective"}[sig]

@@ -81,8 +81,9 @@ def design_from_text(data: dict, text: str, path: Path | None, *, library_folder
         errors = record_errors(exc, file=fname, locate=lambda _f, loc: line(loc),
                                  cls=DesignError, model=RawDesign, format_name="design")
         errors = [_expected_form(_route_key_hint(e)) for e in errors]
-        # a misspelt key explains the required field it leaves missing: name it first;
-        # the others follow in the file's order, so one run names every invalid field
+        # a misspelt key explains the required field it leaves missing: every one comes
+        # first (in the file's order), then the others in the file's order, so one run
+        # names every invalid field (docs/cli.md says this order)
         errors.sort(key=lambda e: (e.problem != M.UNKNOWN_FIELD, e.line or 0))
         first = errors[0]
         first.also = tuple(errors[1:])

@@ -153,6 +153,23 @@ class FigureRow:
                 else self.change, "kind": self.kind}
 
 
+#: The lines of an open-drain segment, as the suffixes of their own figures.
+_LINE_SUFFIXES = ("_sda", "_scl")
+
+
+def _line_form_new_in_pinlib(key: tuple, old_f: dict) -> bool:
+    """Whether figure ``key`` is a line's own form (``rise_time_10_90_sda``) of a figure
+    the old result gives only for the segment (the worse of its lines): a figure a later
+    pinlib adds, not a change of the board, so it is not listed as new."""
+    path, name = key
+    for suffix in _LINE_SUFFIXES:
+        if name.endswith(suffix):
+            base = name[:-len(suffix)]
+            return (path, base) in old_f and not any((path, base + s) in old_f
+                                                     for s in _LINE_SUFFIXES)
+    return False
+
+
 #: Figures that are a part pinlib chose ("auto" pull-ups and series resistors).
 CHOSEN_PARTS = frozenset({"pullup_resistor", "series_resistor"})
 
@@ -176,6 +193,8 @@ def figure_rows(old_result: dict, new_result: dict, *, threshold: float = DEFAUL
         unit = (n or o or {}).get("unit", "")
         ov = o.get("value") if o else None
         nv = n.get("value") if n else None
+        if o is None and _line_form_new_in_pinlib(key, old_f):
+            continue
         if o is None:
             rows.append(FigureRow(*key, unit, None, nv, None, True, "added"))
             continue
