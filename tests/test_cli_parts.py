@@ -532,8 +532,9 @@ def test_new_without_a_source_writes_none_and_check_lists_it(lib, capsys):
     assert code == 1
     assert f"team/x1.toml:{line}, field 'provenance.source'" in out
     assert "basis 'datasheet' but no source" in out
-    # and the warnings of the fixture's SDA pins (open-drain, no v_ol and i_ol)
-    assert out.splitlines()[-1] == "checked 2 files in team: 1 problem, 2 warnings"
+    # the fixture's SDA pins (open-drain, no v_ol and i_ol) are not warned of: an I2C
+    # bus takes the specification's sink point for them
+    assert out.splitlines()[-1] == "checked 2 files in team: 1 problem"
     code, _, err = run(capsys, "parts", "new", "x2", "--from", "base", "--into", "team",
                        "--source", "rev A")
     assert code == 0 and "no --source" not in err
@@ -1045,7 +1046,8 @@ def test_check_says_when_a_part_s_later_checks_cannot_run(lib, capsys):
 
 def test_check_lists_a_part_no_bus_can_take(lib, capsys):
     # an SDA pin without SCL, an SPI pin without SCLK: the design loader refuses either
-    # part on its bus; an open-drain pin without its sink point.  Once "no problems".
+    # part on its bus; an open-drain pin without its sink point (a GPIO's: an I2C pin
+    # without one takes the specification's, and is not warned of).  Once "no problems".
     _, team = lib
     # invented test inputs
     (team / "half.toml").write_text(textwrap.dedent("""\
@@ -1061,6 +1063,10 @@ def test_check_lists_a_part_no_bus_can_take(lib, capsys):
         [pins.cs]
         function = "spi-cs"
         c_in = "5 pF"
+        [pins.int]
+        function = "gpio"
+        drive = "open-drain"
+        c_in = "5 pF"
         """), encoding="utf-8")
     code, out, _ = run(capsys, "parts", "check", "team/half.toml")
     flat = " ".join(out.split())
@@ -1070,8 +1076,9 @@ def test_check_lists_a_part_no_bus_can_take(lib, capsys):
             "device on such a bus to have i2c-sda and i2c-scl") in flat, out
     assert ("team/half.toml:10, field 'pins.cs': pins of spi (spi-cs) but no spi-sclk pin"
             in flat), out
-    assert ("team/half.toml:6, field 'pins.sda': an open-drain pin without v_ol and i_ol"
+    assert ("team/half.toml:13, field 'pins.int': an open-drain pin without v_ol and i_ol"
             in flat), out
+    assert "'pins.sda': an open-drain pin" not in flat
     assert out.splitlines()[-1] == "checked 1 file, team/half.toml: no problems, 3 warnings"
     code, out, _ = run(capsys, "parts", "check", "team/half.toml", "--json")
     got = json.loads(out)
