@@ -217,7 +217,8 @@ def test_spi_positions_are_evaluated_with_their_edges_batched():
 
 DATA = ROOT / "tests" / "data"
 PP_DESIGNS = ["long-spi-link.toml", "spi-5v-flash.toml", "spi-cipo-never-high.toml",
-              "spi-length-tolerance.toml", "spi-one-km.toml", "spi-slow-edge.toml"]
+              "spi-length-tolerance.toml", "spi-one-km.toml", "spi-slow-edge.toml",
+              "spi-fast-corner.toml"]
 
 
 def _pp_positions(design) -> list[str]:

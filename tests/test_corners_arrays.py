@@ -40,6 +40,7 @@ CASES = [
     (DATA / "spi-length-tolerance.toml", "link", "with-extra-c"),   # 9 parameters: screened
     (DATA / "spi-cipo-never-high.toml", "flash", "pins"),           # 8: CIPO never high
     (DEMO, "flash", "own-rail"),                                    # 6: every vertex
+    (DATA / "spi-fast-corner.toml", None, None),    # hold at the controller's fast corner
 ]
 
 

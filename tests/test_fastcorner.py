@@ -1,7 +1,8 @@
 """A push-pull output's fast corner (``[pins.<name>.fast]``): the format and the line engine.
 
-The slow corner (the pin's ``r_out`` and ``edges``) sets edge times and timing; the fast
-corner sets overshoot, undershoot and ringing.  The parts here are invented test data.
+The slow corner (the pin's ``r_out`` and ``edges``) sets edge times and the latest
+flights (setup); the fast corner sets overshoot, undershoot and ringing, and its flights
+stand beside the slow ones for the hold checks.  The parts here are invented test data.
 """
 
 from __future__ import annotations
@@ -78,6 +79,12 @@ def test_fast_corner_sets_overshoot_slow_corner_sets_edges_and_timing(lib):
         got = both.cases["U1"].flight(rx, edge)
         want = slow.cases["U1"].flight(slow.receivers[0], edge)
         assert (got.early, got.late) == pytest.approx((want.early, want.late), rel=1e-12)
+        # ...and the flights at the fast corner (for hold) the fast part's, each from
+        # its own reference (the same solves, so to rounding)
+        alone = fast.cases["U1"].flight(fast.receivers[0], edge)
+        assert (got.fast_early, got.fast_late) == pytest.approx((alone.early, alone.late),
+                                                                rel=1e-12)
+        assert want.fast_early is None and want.at_fast() == want
     over = both.result.check("overshoot")
     assert over.value == pytest.approx(fast.result.check("overshoot").value, rel=1e-12)
     assert over.value > slow.result.check("overshoot").value

@@ -48,7 +48,8 @@ def _variants(bus):
 
 
 CASES = [("spi-length-tolerance.toml", "link"), ("spi-cipo-never-high.toml", "flash"),
-         ("spi-5v-flash.toml", "flash"), ("long-spi-link.toml", "link")]
+         ("spi-5v-flash.toml", "flash"), ("long-spi-link.toml", "link"),
+         ("spi-fast-corner.toml", "link")]   # a controller with a fast corner (hold)
 
 
 def _bus(name, bus_id):

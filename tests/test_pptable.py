@@ -646,3 +646,21 @@ def test_the_table_note_wraps_as_one_sentence():
         first = glue(after.strip()).split(" ")[0]
         assert len(line) + 1 + len(first) > 80, (line, after)
         assert len(line) >= 68, lines
+
+
+def test_hold_at_a_fast_corner_is_tabulated_as_the_engine_gives_it():
+    # tests/data/spi-fast-corner.toml (invented): a controller stating a fast corner whose
+    # COPI hold is shorter there; the table carries each flight at both corners, so its
+    # boards' hold margins are the engine's within the table's tolerance
+    design = load_design(DATA / "spi-fast-corner.toml")
+    bus = design.buses[0]
+    n = 400
+    by_table, by_engine, table, _ = _both_ways(bus, design, n, seed=3)
+    assert isinstance(table, pptable.LineTable) and by_table.engine_boards < n
+    hold = [i for i, nm in enumerate(by_engine.names)
+            if nm["name"].startswith("link copi-hold")]
+    assert hold
+    for a, b in zip(by_table.items, by_engine.items, strict=True):
+        np.testing.assert_array_equal(a.status, b.status)
+        if b.margin is not None:
+            np.testing.assert_allclose(a.margin, b.margin, rtol=0, atol=pptable.MARGIN_TOL)

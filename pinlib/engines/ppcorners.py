@@ -170,7 +170,8 @@ class _Corners:
         """One line's checks into ``rank``/``present``, its slowest ``edge-time`` value
         into ``edges`` (the edge rule's term, as :func:`~pinlib.engines.spi.analysis.
         spi_analysis` takes it) and, per peripheral, the flights it gives:
-        ``{(peripheral index, field): (early, late)}``, each of shape ``(n,)``."""
+        ``{(peripheral index, field): (early, late, fast_early, fast_late)}``, each of
+        shape ``(n,)`` (the fast corner's the slow one's where the driver states none)."""
         buses, inverse = self._variants(u, sig)
         nv = len(buses)
         slowest, timed = np.full(nv, np.nan), np.zeros(nv, dtype=bool)
@@ -198,9 +199,12 @@ class _Corners:
                 for edge, f in pieces:
                     if f is None:
                         continue
-                    e, late = out.setdefault((i, edge), (np.full(nv, np.nan),
-                                                         np.full(nv, np.nan)))
-                    e[v], late[v] = f.early, f.late
+                    cols4 = out.setdefault((i, edge), tuple(np.full(nv, np.nan)
+                                                            for _ in range(4)))
+                    fast = f.at_fast()
+                    for col, x in zip(cols4, (f.early, f.late, fast.early, fast.late),
+                                      strict=True):
+                        col[v] = x
                     count[(i, edge)] = count.get((i, edge), 0) + 1
         if any(c != nv for c in count.values()):
             return None
@@ -213,7 +217,7 @@ class _Corners:
             rank[:, j] = np.where(has, col, np.inf)[inverse]
             present[:, j] = has[inverse]
             checks[j] = lambda i, got=held[j]: got[inverse[i]]
-        return {k: (e[inverse], late[inverse]) for k, (e, late) in out.items()}
+        return {k: tuple(col[inverse] for col in cols4) for k, cols4 in out.items()}
 
     def _peripherals(self, flights: dict) -> list:
         """The nominal peripherals' timing with each board's flights (arrays)."""

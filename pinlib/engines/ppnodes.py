@@ -61,16 +61,12 @@ def record(bus: Bus, res, sa) -> tuple[dict, list]:
             for sig in EDGE_FIELDS:
                 edges = getattr(p, sig)
                 for e in ("rise", "fall") if edges is not None else ():
-                    f = edges[e]
-                    per_line.setdefault(sig, []).extend(
-                        [("flight", i, f"{sig}-{e}", "early", f.early),
-                         ("flight", i, f"{sig}-{e}", "late", f.late)])
+                    per_line.setdefault(sig, []).extend(_flight_labels(i, f"{sig}-{e}",
+                                                                       edges[e]))
             for field in FIELDS:
                 f = getattr(p, field)
                 if f is not None:
-                    per_line.setdefault(field, []).extend(
-                        [("flight", i, field, "early", f.early),
-                         ("flight", i, field, "late", f.late)])
+                    per_line.setdefault(field, []).extend(_flight_labels(i, field, f))
     return per_line, checks
 
 
@@ -146,6 +142,16 @@ def supply_plan(bus: Bus, ref: str) -> tuple:
             vtol = bus.supply_tolerance or 0.0
             return ("supply", ppv.rail_key(v, vtol) if vtol > 0 else None, v, lo, hi)
     raise AssertionError(ref)  # the engine made the check from these rows
+
+
+def _flight_labels(i: int, key: str, f) -> list:
+    """A flight's labelled numbers, in the order :func:`flight_slots` finds them from its
+    first: early, late, and the same at the driver's fast corner (the slow corner's where
+    it states none: :meth:`~pinlib.engines.pushline.Flight.at_fast`)."""
+    fast = f.at_fast()
+    return [("flight", i, key, "early", f.early), ("flight", i, key, "late", f.late),
+            ("flight", i, key, "fast-early", fast.early),
+            ("flight", i, key, "fast-late", fast.late)]
 
 
 def flight_slots(sa, labels) -> list:

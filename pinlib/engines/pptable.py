@@ -332,14 +332,18 @@ class LineTable:
                 if field not in slots:
                     return getattr(p, field)
                 if field in EDGE_FIELDS:
-                    return {e: Flight(got[field][:, slots[field][e]],
-                                      got[field][:, slots[field][e] + 1])
-                            for e in ("rise", "fall")}
+                    return {e: _flight(got[field], slots[field][e]) for e in ("rise", "fall")}
                 sig, base = slots[field]
-                return Flight(got[sig][:, base], got[sig][:, base + 1])
+                return _flight(got[sig], base)
             periphs.append(replace(p, sclk=flight("sclk"), copi=flight("copi"),
                                    cs=flight("cs"), cipo=flight("cipo")))
         return budget_terms(sa.mode, sa.controller, periphs, sa.t_bridge)
+
+
+def _flight(numbers: np.ndarray, base: int) -> Flight:
+    """A flight over the boards from a line's numbers, its four from ``base`` on (early,
+    late, and the same at the fast corner: :func:`pinlib.engines.ppnodes.record`). [s]"""
+    return Flight(*(numbers[:, base + k] for k in range(4)))
 
 
 def tabulate(bus: Bus, design: Design, axes: list[Axis],

@@ -171,7 +171,8 @@ class FastCorner(Record):
     """A push-pull output's fast corner (strongest drive, quickest edges).
 
     The pin's own ``r_out`` and ``edges`` are the slow corner, which sets edge times and
-    timing; this corner sets overshoot, undershoot and ringing.
+    timing; this corner sets overshoot, undershoot and ringing, and joins the slow one in
+    the SPI hold checks (the minimum delays).
     """
 
     r_out: Resistance | None = None

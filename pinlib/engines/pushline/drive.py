@@ -55,8 +55,9 @@ class DriveCase:
         Static levels of the line. [V]
     fast_rise, fast_fall : EdgeWave or None
         The two edges of the driver's fast corner (``model.fast``), when its part states
-        one: they set overshoot, undershoot and ringing; ``rise`` and ``fall`` (the slow
-        corner) set edge times and timing. [1]
+        one: they set overshoot, undershoot and ringing, and the flights at that corner
+        (:meth:`flight`, for hold); ``rise`` and ``fall`` (the slow corner) set edge
+        times and the slow corner's flights. [1]
     net : RouteNet or None
         A routed line's tree; None for the simple form (every pin at the far end). [1]
     points : dict or None
@@ -121,22 +122,45 @@ class DriveCase:
             return self.si_wave(edge)
         return self.si_points[edge].at(self.net.node(ref))
 
+    def fast_ref(self, edge: str) -> float:
+        """The timing reference of one edge at the driver's fast corner: when its pin
+        would cross the reference level into its datasheet ``test_load`` with the fast
+        corner's drive (as :attr:`ref` at the slow corner); :attr:`ref`'s where the
+        driver has no fast corner. [s]"""
+        fast = self.model.fast
+        if fast is None or self.fast_rise is None:
+            return self.ref[edge]
+        c_test = _test_load(self.driver.device)
+        if edge == "rise":
+            return _ref_time(fast.t_ramp_rise, fast.r_rise * c_test)
+        return _ref_time(fast.t_ramp_fall, fast.r_fall * c_test)
+
     def flight(self, receiver: Endpoint, edge: str) -> Flight:
-        """Earliest and latest flight of one edge to a receiver's thresholds. [s]
+        """Earliest and latest flight of one edge to a receiver's thresholds, at the
+        slow corner and, where the driver's part states one, at the fast corner (from
+        its own reference there, :meth:`fast_ref`). [s]
 
         Early: VIL on a rise, VIH on a fall; late the other way round.  A receiver
         without thresholds is taken to switch at half its supply.
         """
         v_il, v_ih = _thresholds(receiver)
-        w = self.wave_at(receiver.ref, edge)
         first, last = (v_il, v_ih) if edge == "rise" else (v_ih, v_il)
+        w = self.wave_at(receiver.ref, edge)
         ref = self.ref[edge]
-        return Flight(w.crossing(first) - ref, w.crossing(last) - ref)
+        if self.fast_rise is None:
+            return Flight(w.crossing(first) - ref, w.crossing(last) - ref)
+        fw, f_ref = self.si_wave_at(receiver.ref, edge), self.fast_ref(edge)
+        return Flight(w.crossing(first) - ref, w.crossing(last) - ref,
+                      fw.crossing(first) - f_ref, fw.crossing(last) - f_ref)
 
     def flight_both(self, receiver: Endpoint) -> Flight:
-        """Flight over both edges: earliest of the early, latest of the late. [s]"""
+        """Flight over both edges: earliest of the early, latest of the late, at each
+        corner. [s]"""
         r, f = self.flight(receiver, "rise"), self.flight(receiver, "fall")
-        return Flight(min(r.early, f.early), max(r.late, f.late))
+        if r.fast_early is None:
+            return Flight(min(r.early, f.early), max(r.late, f.late))
+        return Flight(min(r.early, f.early), max(r.late, f.late),
+                      min(r.fast_early, f.fast_early), max(r.fast_late, f.fast_late))
 
 
 def _thresholds(rx: Endpoint) -> tuple[float, float]:
@@ -256,8 +280,8 @@ def _driver_model(ep: Endpoint, notes: list) -> drv.Driver:
     if model.fast is not None:
         notes.extend(f"{ep.label}: {n}" for n in model.fast.notes)
         notes.append(f"{ep.label}: fast corner (pins.{ep.pin_name}.fast) used for overshoot, "
-                     "undershoot and ringing; slow corner (r_out, edges) for edge time and "
-                     "timing")
+                     "undershoot and ringing, and beside the slow corner for SPI hold (the "
+                     "shorter); slow corner (r_out, edges) for edge time and other timing")
     return model
 
 

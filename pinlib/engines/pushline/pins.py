@@ -80,11 +80,25 @@ class Flight:
     early, late : float
         From the driver's datasheet reference (its pin crossing 50 % of its swing into
         its ``test_load``) to the input's first / last possible switching point:
-        VIL then VIH on a rise, VIH then VIL on a fall. [s]
+        VIL then VIH on a rise, VIH then VIL on a fall; at the driver's slow corner. [s]
+    fast_early, fast_late : float or None
+        The same at the driver's fast corner, from its reference at that corner (its
+        pin's crossing into ``test_load`` with the fast corner's drive), where its part
+        states one (``pins.<name>.fast``); None: no fast corner, the slow corner's
+        stand. [s]
     """
 
     early: float
     late: float
+    fast_early: float | None = None
+    fast_late: float | None = None
+
+    def at_fast(self) -> Flight:
+        """The flight at the driver's fast corner (early and late from it), or this
+        flight where the driver states no fast corner. [s]"""
+        if self.fast_early is None:
+            return self
+        return Flight(self.fast_early, self.fast_late)
 
 
 def device_supply(device: Device, bus: Bus) -> float:

@@ -24,6 +24,16 @@ Every receiving input switches somewhere between its VIL(max) and VIH(min).  An
 a *late* flight the last (VIH on a rise, VIL on a fall).  Setup budgets use late data
 against an early clock; hold budgets early data against a late clock.
 
+Corners: a driver's flights are taken at its slow corner (the pin's ``r_out`` and
+``edges``), the maximum delays of setup.  Where its part states a fast corner
+(``pins.<pin>.fast``), the hold checks also take it, the side of the minimum delays:
+each corner's flights run from that corner's own timing reference (its pin into
+``test_load`` with that corner's drive), so two flights of one driver are paired within
+a corner, never mixed (COPI hold and CS hold: the controller's data or CS against its
+own SCLK, the shorter hold of its two corners), while flights of two drivers each take
+their own driver's earlier corner (CIPO hold: the controller's SCLK, the peripheral's
+CIPO).  Setup, the SCLK pulses and the first CIPO bit stay at the slow corner.
+
 Modes (CPOL, CPHA)
 ------------------
 See :data:`SPI_MODES`.  Data is launched on one SCLK edge and sampled on the other,

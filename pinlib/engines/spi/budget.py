@@ -220,6 +220,29 @@ def _or0(x):
     return 0.0 if x is None else float(x)
 
 
+def _pick(fast, a, b):
+    """``a`` where ``fast``, else ``b``: floats where all are, else elementwise over
+    arrays of boards. [1]"""
+    out = np.where(fast, a, b)
+    return float(out) if out.ndim == 0 else out
+
+
+def _hold_corner(b_slow, b_fast):
+    """Where a hold time between two flights of one driver is shorter at its fast corner
+    than at its slow one: each corner's flights measured from that corner's own output
+    timing reference, so the two are paired within a corner, never mixed.  A NaN
+    (no time) keeps the slow corner. [1]"""
+    return np.asarray(b_fast, dtype=float) < np.asarray(b_slow, dtype=float)
+
+
+def _earliest(f):
+    """A flight's earliest end over its driver's corners (the slow one's, or the fast
+    one's where it states one and that is earlier): the minimum delay of a hold check
+    whose other terms come from another part. [s]"""
+    fast = f.at_fast()
+    return _pick(_hold_corner(f.early, fast.early), fast.early, f.early)
+
+
 def budget_terms(mode: SpiMode, controller: ControllerTiming,
                  peripherals: list[PeripheralTiming], t_bridge: float = 0.0) -> list[Term]:
     """Every timing requirement of an SPI bus as a linear function of the period.
@@ -274,10 +297,16 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 {"half_period": "T/2", "sclk_early": s_sample.early, "t_valid_controller": tv,
                  "copi_late": p.copi.late, "t_setup": _or0(p.t_setup)},
                 p.t_setup is not None))
+            # hold: at the controller's slow and fast corners, the shorter (both
+            # flights are its own, each from its reference at that corner)
+            fc, fs = p.copi.at_fast(), s_sample.at_fast()
+            fast = _hold_corner(p.copi.early - s_sample.late, fc.early - fs.late)
+            copi_early = _pick(fast, fc.early, p.copi.early)
+            sclk_late = _pick(fast, fs.late, s_sample.late)
             terms.append(Term(
-                "copi-hold", p.ref, 0.5, p.copi.early - s_sample.late,
+                "copi-hold", p.ref, 0.5, copi_early - sclk_late,
                 _or0(p.t_hold), src.get("t_hold", ""),
-                {"half_period": "T/2", "copi_early": p.copi.early, "sclk_late": s_sample.late,
+                {"half_period": "T/2", "copi_early": copi_early, "sclk_late": sclk_late,
                  "t_hold": _or0(p.t_hold)}, p.t_hold is not None))
         if p.cipo is not None and p.t_valid is not None:
             terms.append(Term(
@@ -288,11 +317,14 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                  "t_setup_controller": _or0(controller.t_setup)},
                 controller.t_setup is not None))
         if p.cipo is not None:
+            # SCLK is the controller's and CIPO the peripheral's: each at the corner of
+            # its own driver that makes it earliest
+            sclk_early, cipo_early = _earliest(s_launch), _earliest(p.cipo)
             terms.append(Term(
-                "cipo-hold", p.ref, 0.5, s_launch.early + p.cipo.early,
+                "cipo-hold", p.ref, 0.5, sclk_early + cipo_early,
                 _or0(controller.t_hold), c_src.get("t_hold", ""),
-                {"half_period": "T/2", "sclk_early": s_launch.early,
-                 "cipo_early": p.cipo.early, "t_hold_controller": _or0(controller.t_hold)},
+                {"half_period": "T/2", "sclk_early": sclk_early,
+                 "cipo_early": cipo_early, "t_hold_controller": _or0(controller.t_hold)},
                 controller.t_hold is not None))
         if p.cs is not None:
             # a controller that records no CS lead (lag) is taken to give half a period
@@ -317,10 +349,15 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 lag = lag_text = float(controller.t_cs_lag)
             # the last edge leaves the controller lag before CS is released: the
             # peripheral sees CS held from the last edge's late arrival to CS's early one
+            # at the controller's slow and fast corners, the shorter (as copi-hold)
+            fc, fs = cs_off.at_fast(), s_last.at_fast()
+            fast = _hold_corner(cs_off.early - s_last.late, fc.early - fs.late)
+            cs_early = _pick(fast, fc.early, cs_off.early)
+            sclk_late = _pick(fast, fs.late, s_last.late)
             terms.append(Term(
-                "cs-hold", p.ref, a_off, lag + cs_off.early - s_last.late,
+                "cs-hold", p.ref, a_off, lag + cs_early - sclk_late,
                 _or0(p.t_cs_hold), src.get("t_cs_hold", ""),
-                {"lag": lag_text, "sclk_late": s_last.late, "cs_early": cs_off.early,
+                {"lag": lag_text, "sclk_late": sclk_late, "cs_early": cs_early,
                  "t_cs_hold": _or0(p.t_cs_hold)}, p.t_cs_hold is not None, lag_assumed))
             if mode.cpha == 0 and p.cipo is not None and p.t_cs_valid is not None:
                 # CPHA 0: the first bit is driven when CS asserts and sampled on the first

@@ -394,7 +394,7 @@ def waveform_data(bus: Bus, design: Design, signal: str, *, driver: str | None =
         waves = {f"{n} (slow corner)": w for n, w in waves.items()} | fast
         notes.append(f"overshoot, undershoot and ringing are checked on the fast corner of "
                      f"{ref} (its part's pins.{case.driver.pin_name}.fast), edge times and "
-                     "timing on its slow corner")
+                     "timing on its slow corner (SPI hold on both)")
     board = _board_note(bus)
     if board is not None:
         notes.append(board)
