@@ -3605,7 +3605,7 @@ def _(env):
     return _fix_of(env, _gpio('{ length = "20 cm", geometry = "g" }'), "level-low")
 
 
-@case("LEVEL_LOW_FIX_DRIVER", M.LEVEL_LOW_FIX_DRIVER.format(v_ol="65.9 mV"))
+@case("LEVEL_LOW_FIX_DRIVER", M.LEVEL_LOW_FIX_DRIVER.format(v_ol="66 mV"))
 def _(env):
     return _fix_of(env, _gpio('{ length = "1 cm", geometry = "g", series_resistor = "auto" }'),
                    "level-low", 'warn_margin = "90 %"')

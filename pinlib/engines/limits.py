@@ -185,6 +185,16 @@ class OpenDrainLimits:
                 Sourced(Threshold(0.0, c.v_ih_min, f"{c.v_ih_min:g} V"), "V", basis="generic",
                         source=self.source_levels))
 
+    def states_sink(self, vdd: float, vtol: float = 0.0) -> bool:
+        """Whether the document gives every device a sink point on a rail ``vdd`` ±
+        ``vtol``: not I2C's Standard-mode (nor a mode without VOL2) where the rail's
+        minimum reaches 2 V, for which UM10204 rev. 6 table 9 gives none (the engine
+        then takes VOL1, :meth:`default_sink`, as its best estimate)."""
+        if self._smbus is not None:
+            return True
+        return (vdd * (1.0 - vtol) > i2c_std.VDD_LOW_SINK
+                or self._i2c.v_ol_low_vdd_rel is not None)
+
     def default_sink(self, vdd: float, vtol: float = 0.0) -> tuple[Sourced, Sourced, str]:
         """(VOL, IOL, which rule) a driver without its own sink point is taken at, on a
         rail ``vdd`` ± ``vtol``.  I2C's VOL2 (VDD <= 2 V) is taken wherever the rail's

@@ -367,8 +367,9 @@ def _drivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
         v_ol = _corner_values(vol_s, t, v, vtol, "max")
         _refuse_below_ground(v_ol, vol_s, t, v, vtol)
         i_ol = float(iol_s.value)
-        if lim.protocol == "i2c" and t.pin.v_ol is not None and t.pin.i_ol is not None:
-            _below_spec_sink(seg_in, t, v_ol, i_ol, d_vol, d_iol, rule, lim, up)
+        if (lim.protocol == "i2c" and t.pin.v_ol is not None and t.pin.i_ol is not None
+                and lim.states_sink(t.vdd, vtol)):
+            _below_spec_sink(seg_in, t, i_ol, d_vol, d_iol, rule, lim, up)
         src = t.source("i_ol") if t.pin.i_ol is not None else lim.source_sink
         offset = None
         if _offset_side(t.dev) == t.dev.side and t.dev.side is not None:
@@ -380,27 +381,29 @@ def _drivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
     return drivers
 
 
-def _below_spec_sink(seg_in: SegmentInputs, t: _Tap, v_ol: np.ndarray, i_ol: float,
-                     d_vol: Sourced, d_iol: Sourced, rule: str, lim: OpenDrainLimits,
-                     up: str) -> None:
+def _below_spec_sink(seg_in: SegmentInputs, t: _Tap, i_ol: float, d_vol: Sourced,
+                     d_iol: Sourced, rule: str, lim: OpenDrainLimits, up: str) -> None:
     """A note where a pin's stated sink guarantees less current at the specification's VOL
     than UM10204 rev. 6 table 9 asks of every device of the mode (not on SMBus, whose
-    low-power devices of table 3 sink only 350 µA).  The pin's point is taken as the
-    engine takes it: a resistance v_ol/i_ol up to its rating, the current held at i_ol
-    beyond it; at the rail corner of least current.  The pull-up window already follows
-    the pin's own rating: the note says that the part is off the specification."""
-    spec_vol = np.asarray(d_vol.at(seg_in.vdd), dtype=float)
-    spec_iol = float(d_iol.value)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        guaranteed = i_ol * np.minimum(1.0, spec_vol / np.maximum(v_ol, 1e-30))
+    low-power devices of table 3 sink only 350 µA; not where the table gives the mode no
+    point for the rail, :meth:`OpenDrainLimits.states_sink`).  The pin's point is taken
+    as the engine takes it: a resistance v_ol/i_ol up to its rating, the current held at
+    i_ol beyond it.  The pin's VOL and the specification's are taken at the same rail,
+    each end of the pin's own (VOL2 and a relative v_ol follow it), and the note gives
+    the end of least current.  The pull-up window already follows the pin's own rating:
+    the note says that the part is off the specification."""
+    rails = (np.array([t.vdd * (1 - seg_in.vtol), t.vdd * (1 + seg_in.vtol)]) if t.own
+             else np.asarray(seg_in.vdd, dtype=float))
+    spec_vol = np.broadcast_to(np.asarray(d_vol.at(rails), dtype=float), rails.shape)
+    part_vol = np.broadcast_to(np.asarray(t.pin.v_ol.at(rails), dtype=float), rails.shape)
+    guaranteed = i_ol * np.minimum(1.0, spec_vol / np.maximum(part_vol, 1e-30))
     at = int(np.argmin(guaranteed))
     least = float(guaranteed.flat[at])
-    if not least < spec_iol * (1.0 - 1e-9):
+    if not least < float(d_iol.value) * (1.0 - 1e-9):
         return
-    # the VOL of the corner it is taken at (VOL2 follows the rail: its low end)
-    vol = float(np.broadcast_to(spec_vol, guaranteed.shape).flat[at])
     _default(seg_in, M.SINK_BELOW_SPEC.format(rule=rule, source=lim.source_sink),
-             f"{t.label} {up} ({format_si(least, 'A')} at {format_si(vol, 'V')})")
+             f"{t.label} {up} ({format_si(least, 'A')} at "
+             f"{format_si(float(spec_vol.flat[at]), 'V')})")
 
 
 def _receivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,

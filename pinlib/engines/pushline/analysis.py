@@ -200,7 +200,10 @@ def _fmt_rounded(x: float, unit: str, rounding) -> str:
     if not (math.isfinite(x) and x > 0):
         return _fmt(x, unit)
     step = 10.0 ** (math.floor(math.log10(x)) - 2)
-    return _fmt(rounding(x / step) * step, unit)
+    q = x / step
+    if abs(q - round(q)) <= 1e-9 * q:  # float noise of a round value: 199.99999999999997
+        q = float(round(q))
+    return _fmt(rounding(q) * step, unit)
 
 
 def case_edge_times(c, receivers=()) -> tuple:
