@@ -3704,6 +3704,51 @@ def _(env):
     return _corner_notes(env)
 
 
+# ---------------------------------------------------------------- a board capacitance too low
+_BOARD_C_BUS = """
+[[bus]]
+id = "g"
+protocol = "gpio"
+supply = "3.3 V"
+capacitance_tolerance = "{tol}"
+devices = [
+  {{ ref = "U1", part = "fpga-io-3v3", role = "controller", pin = "gpio_out" }},
+  {{ ref = "U2", part = "nor-flash-spi", pin = "cs" }},
+]
+lines.en = {{ length = "5 cm", {line} }}
+"""
+
+
+def _board_c(env, tol: str, line: str) -> PinlibError:
+    # invented test design; the tolerance drawn low would carry the edge faster than
+    # light (published: the speed of light; the lossless-line tpd = sqrt(L'C'))
+    from pinlib.engines.dispatch import check_design
+
+    d = env.design(_BOARD_C_BUS.format(tol=tol, line=line))
+    return _fails(lambda e: check_design(d), env)
+
+
+@case("BOARD_C_FASTER_THAN_LIGHT", M.BOARD_C_FASTER_THAN_LIGHT.format(
+    low="100 %", label="geometry g"))
+def _(env):
+    return _board_c(env, "100 %", 'geometry = "g"').message
+
+
+@case("BOARD_C_TOLERANCE_AT_MOST", M.BOARD_C_TOLERANCE_AT_MOST.format(most="70.3 %"))
+def _(env):
+    # derived: 60 ps/cm against light's 33.36 ps/cm less 2 %: sqrt(k) >= 0.5449, so a
+    # tolerance of at most 1 - 0.2969 = 70.3 %
+    err = _board_c(env, "90 %", 'capacitance = "1 pF/cm", delay = "60 ps/cm"')
+    assert "at most 70.3 %" in err.message
+    return err.message
+
+
+@case("BOARD_C_TOLERANCE_BELOW_ALL")
+def _(env):
+    # a line of lumped capacitance only (no delay) still needs some capacitance left
+    return _board_c(env, "100 %", 'capacitance = "1 pF/cm"').message
+
+
 # ---------------------------------------------------------------- pinlib/studies/compare.py
 def _compare():
     from pinlib.studies import compare

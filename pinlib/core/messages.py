@@ -577,6 +577,13 @@ SINK_BELOW_SPEC = ("sink rated below the specification's {rule} ({source}): the 
                    "window follows each pin's own rating, but the part itself does not meet "
                    "the specification (a pull-up sized to the specification, on a module or "
                    "another board, may be too strong for it)")
+#: A bus's capacitance_tolerance drawn low on a push-pull line: the inductance held, the
+#: delay falls with the square root of the capacitance.
+BOARD_C_FASTER_THAN_LIGHT = ("a board capacitance {low} below the stated one would carry an "
+                             "edge along {label} faster than light (the inductance per length "
+                             "held, the delay falls with the square root of the capacitance)")
+BOARD_C_TOLERANCE_AT_MOST = "a capacitance_tolerance of at most {most} on this bus's lines"
+BOARD_C_TOLERANCE_BELOW_ALL = "a capacitance_tolerance below 100 %"
 LEVEL_BELOW_GROUND = "an output low level below ground at this rail"
 LEVEL_BELOW_GROUND_EXPECTED = ("a level at or above 0 V; it resolves to {level} at VDD {vdd} "
                                "(write it in volts, or relative to a supply it suits)")

@@ -8,6 +8,8 @@ import warnings
 from collections.abc import Sequence
 
 from pinlib.core import messages as M
+from pinlib.core.errors import DesignError
+from pinlib.core.quantity import DELAY_MIN
 from pinlib.core.valueclass import value_class
 from pinlib.engines.pushline.rules import (
     LONG_LINE_FRACTION,
@@ -93,10 +95,35 @@ def stretches_of(sections: Sequence[Section]) -> list[Stretch]:
         st = _stretch(s)
         k = float(s.capacitance_factor)
         if k != 1.0:  # C' scaled, L' held: Z0 = sqrt(L'/C'), tpd = sqrt(L'C')
+            _refuse_faster_than_light(st, k)
             r = math.sqrt(k)
             st = Stretch(st.length, st.z0 / r, st.td * r, st.c * k, st.label)
         out.append(st)
     return out
+
+
+def _refuse_faster_than_light(st: Stretch, k: float) -> None:
+    """A board capacitance ``k`` times the stated one (``capacitance_tolerance`` drawn
+    low, the inductance held) may not carry a stretch's edge faster than light, nor take
+    its capacitance to nothing: the tolerance is refused at its field, with the largest
+    this line allows (its delay per length against light's, with the rounding the format
+    allows a stated delay)."""
+    if st.td > 0.0 and st.length > 0.0:
+        per = st.td / st.length
+        fastest = DELAY_MIN / per  # sqrt(k) may go down to this
+        if k > 0.0 and math.sqrt(k) * per >= DELAY_MIN:
+            return
+        most = max(0.0, 1.0 - min(fastest, 1.0) ** 2)
+    elif k > 0.0:
+        return
+    else:
+        most = None
+    low = 1.0 - k
+    raise DesignError(
+        M.BOARD_C_FASTER_THAN_LIGHT.format(low=f"{low * 100:.3g} %", label=st.label),
+        field="capacitance_tolerance", value=f"{low * 100:.3g} %",
+        expected=(M.BOARD_C_TOLERANCE_AT_MOST.format(most=f"{math.floor(most * 1000) / 10:g} %")
+                  if most is not None else M.BOARD_C_TOLERANCE_BELOW_ALL))
 
 
 def _stretch(s: Section) -> Stretch:
