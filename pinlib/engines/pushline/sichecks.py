@@ -230,42 +230,53 @@ def _driver_levels(d: Endpoint, c, a: LineAnalysis) -> tuple[float, str, float, 
 
 def _rated_at_load(d: Endpoint, a: LineAnalysis, v_src: float, rated: float,
                    i_rated: float) -> tuple[float, str]:
-    """A push-pull driver's level at the current the line draws, and words saying so.
+    """A push-pull driver's level on the line at the current the line draws, and words
+    saying so.
 
     Its part states the level at a current (VOH at IOH, VOL at IOL: LVTTL's 2.4 V at
     8 mA) far above what CMOS inputs draw; the point is read as a resistance from the
-    rail (``physics.pullup.loaded_level``), as the open-drain engine reads a sink, and
-    loaded with the other pins' stated leakage and the net's pull-ups.  Within the rated
-    current that level is one the part guarantees (a MOS output's drop grows no faster
-    than that line below it); beyond, the part guarantees nothing, and the level stated
-    at the rating is kept, as the words say (a pull-up drawing more than IOL fails
-    ``sink-current``).  Pins that state no leakage add none. [V]"""
+    rail (``physics.pullup.loaded_level``), as the open-drain engine reads a sink, in
+    series with the line's series resistor, and loaded with the other pins' stated
+    leakage and the net's pull-ups.  Within the rated current that level is one the part
+    guarantees (a MOS output's drop grows no faster than that line below it).  Beyond,
+    the part guarantees only its rated current: the line settles where the load takes
+    that much (the open-drain sink's held level, :func:`held_low_level`; a high level
+    where a pull-up to a lower rail takes it, none above ground where leakage alone
+    would).  Pins that state no leakage add none. [V]"""
     if not i_rated > 0.0:
         return rated, ""
     high = v_src > 0.0
     r_src = abs(v_src - rated) / i_rated
+    r = r_src + a.rs
     pulled = a.line.pullup is not None or any(carried_pullup(p) for p in a.loads)
     rp, rail = open_drain_pullup(a.line, a.loads, d) if pulled else (None, d.vdd)
     leak = net_leakage(_others(a.loads, d))
     # leakage takes the level away from the rail it is driven to: out of a high pin,
     # into a low one
-    level = loaded_level(v_src, r_src, leak if high else -leak, rp, rail)
+    level = loaded_level(v_src, r, leak if high else -leak, rp, rail)
     # the current through the pin at that level: out of it when high, into it when low
     # (negative: the other way, a pull-up to a higher rail feeding a high output)
-    pin = (v_src - level if high else level) / r_src if r_src > 0.0 else leak
+    pin = (v_src - level if high else level) / r if r > 0.0 else leak
     name, way = ("VOH", "sources") if high else ("VOL", "sinks")
     rating = f"its {name} is rated {_fmt(rated, 'V')} at {_fmt(i_rated, 'A')}"
+    through = f", with the series resistor {_fmt(a.rs, 'Ω')}" if a.rs > 0.0 else ""
     if pin > i_rated * (1.0 + 1e-9):
-        return rated, (f" as rated: it {way} {_fmt(pin, 'A')} here, more than the "
-                       f"{_fmt(i_rated, 'A')} its {name} is stated at, where the part "
-                       "guarantees no level")
+        if high:  # where the load takes i_rated: a pull-up to a lower rail, else ground
+            held = rail + (i_rated - leak) * rp if rp is not None else 0.0
+            level = max(min(held, level), 0.0)
+        else:
+            level = (float(held_low_level(level, rail, rp, i_rated)) if rp is not None
+                     else max(level, d.vdd))
+        return level, (f" held to its rating: the line would take {_fmt(pin, 'A')}, more "
+                       f"than the {_fmt(i_rated, 'A')} its {name} is stated at, and the "
+                       f"part guarantees no more ({rating})")
     if pin < 0.0:
         flow = f"with {_fmt(-pin, 'A')} flowing into it from the line's pull-up"
     elif pin > 0.0:
         flow = f"as it {way} {_fmt(pin, 'A')}"
     else:
         flow = "with no current drawn (no pin on the line states a leakage)"
-    return level, f" {flow} ({rating}: {_fmt(r_src, 'Ω')})"
+    return level, f" {flow} ({rating}: {_fmt(r_src, 'Ω')}{through})"
 
 
 def _guaranteed_low(d: Endpoint, c) -> float:
