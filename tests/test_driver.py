@@ -508,3 +508,15 @@ def test_a_pins_fit_warnings_name_their_edge():
         driver_from_pin(pin, 3.3)
     misfits = [m for m in _messages(record) if "do not fit the driver model" in m]
     assert sorted(m.split(":")[0] for m in misfits) == ["fall", "rise"]
+
+
+def test_a_value_out_of_range_is_shown_as_a_number_not_an_array():
+    # a fuzz found "got array(3.3)" in an error a user reads (invented test value)
+    import numpy as np
+
+    from pinlib.core.errors import InputError
+    from pinlib.physics.driver.model import _require
+
+    with pytest.raises(InputError) as got:
+        _require(np.asarray(3.3), np.asarray(False), "v_oh", "v_oh < vdd [V]")
+    assert "got 3.3)" in got.value.message and "array" not in got.value.message

@@ -149,7 +149,9 @@ def _array(value, name: str) -> np.ndarray:
 
 def _require(value, ok, name: str, expected: str) -> None:
     if not np.all(ok):
-        raise InputError(M.VALUE_OUT_OF_RANGE, field=name, value=value, expected=expected)
+        arr = np.asarray(value, dtype=float)  # a number as a number, never "array(3.3)"
+        shown = float(arr) if arr.size == 1 else [float(x) for x in arr.ravel()]
+        raise InputError(M.VALUE_OUT_OF_RANGE, field=name, value=shown, expected=expected)
 
 
 def _non_negative(value, name: str, unit: str) -> np.ndarray:
