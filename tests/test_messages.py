@@ -901,6 +901,18 @@ def _(env):
     return _fails(lambda e: e.design(I2C_BUS.replace("eeprom-i2c", "p"), library=lib), env)
 
 
+@case("OUTPUT_LEVELS_INVERTED_AT_RAIL", M.OUTPUT_LEVELS_INVERTED_AT_RAIL.format(
+    pin="sda", v_oh="1.65 V", v_ol="1.98 V", rail="3.3 V"))
+def _(env):
+    # an invented team part whose v_oh (0.5 VDD) lies under its v_ol (0.6 VDD)
+    text = PART.format(id="p").replace(
+        'c_in = "8 pF"', 'c_in = "8 pF"\nv_oh = "0.5 VDD"\ni_oh = "1 mA"\nv_ol = "0.6 VDD"'
+        '\ni_ol = "1 mA"', 1)
+    env.write("team/p.toml", text)
+    lib = load_library([env.tmp / "team"], env=False)
+    return _fails(lambda e: e.design(I2C_BUS.replace("eeprom-i2c", "p"), library=lib), env)
+
+
 @case("THRESHOLDS_INVERTED", M.THRESHOLDS_INVERTED.format(v_il="1.5 VDD", v_ih="0.7 VDD"))
 def _(env):
     text = PART.format(id="p").replace('c_in = "8 pF"',

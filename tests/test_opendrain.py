@@ -1587,6 +1587,9 @@ def test_across_a_pass_transistor_the_low_level_keeps_the_sink_as_a_resistance()
     ("0.36 V", "2 mA", "fast", "1.8 V ± 5 %", 2e-3 * 0.342 / 0.36),
     # Standard-mode at 1.8 V: table 9 gives no VOL2 for it, so no point to fall short of
     ("0.36 V", "2 mA", "standard", "1.8 V", None),
+    # Standard-mode on 2 V ± 5 %: VOL1 holds at the 2.1 V end alone, where 50 µA at 0.4 V
+    # falls short of 3 mA
+    ("0.4 V", "50 µA", "standard", "2 V ± 5 %", 50e-6),
     # SMBus: below table 4's high-power 4 mA, but a low-power device (table 3) sinks only
     # 350 µA (published: SMBus 3.1, tables 3 and 4): no note
     ("0.4 V", "3 mA", "100k", "3.3 V", None),
@@ -1615,7 +1618,7 @@ def test_a_sink_rated_below_the_specification_is_noted(tmp_path, v_ol, i_ol, mod
         assert notes == []
         return
     (note,) = notes
-    vol = 0.342 if vtol else 0.4
+    vol = 0.342 if vtol and supply == "1.8 V" else 0.4
     assert f"U2 SDA ({format_si(least, 'A')} at {format_si(vol, 'V')})" in note
     # the controller's 3 mA at 0.4 V (invented test data) meets Fast-mode, not Fast-mode Plus
     assert ("U1 SDA (3 mA at 400 mV)" in note) == (mode == "fast-plus")

@@ -554,6 +554,8 @@ THRESHOLDS_INVERTED = ("v_il {v_il} lies above v_ih {v_ih} at every supply: no i
                        "reads that way (the two swapped, or a slip?)")
 THRESHOLDS_INVERTED_AT_RAIL = ("its pin {pin} has v_il {v_il} above v_ih {v_ih} on this "
                                "device's {rail} rail: no input reads that way")
+OUTPUT_LEVELS_INVERTED_AT_RAIL = ("its pin {pin} has v_oh {v_oh} at or below v_ol {v_ol} on "
+                                  "this device's {rail} rail: no output drives that way")
 F_MAX_NOT_POSITIVE = "a maximum clock of 0 Hz allows no clock at all"
 SPI_MODES_BAD_LIST = ("a list of the SPI modes the part works in, each once (an empty "
                       "list would allow none)")

@@ -367,8 +367,7 @@ def _drivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
         v_ol = _corner_values(vol_s, t, v, vtol, "max")
         _refuse_below_ground(v_ol, vol_s, t, v, vtol)
         i_ol = float(iol_s.value)
-        if (lim.protocol == "i2c" and t.pin.v_ol is not None and t.pin.i_ol is not None
-                and lim.states_sink(t.vdd, vtol)):
+        if lim.protocol == "i2c" and t.pin.v_ol is not None and t.pin.i_ol is not None:
             _below_spec_sink(seg_in, t, i_ol, d_vol, d_iol, rule, lim, up)
         src = t.source("i_ol") if t.pin.i_ol is not None else lim.source_sink
         offset = None
@@ -397,6 +396,12 @@ def _below_spec_sink(seg_in: SegmentInputs, t: _Tap, i_ol: float, d_vol: Sourced
     spec_vol = np.broadcast_to(np.asarray(d_vol.at(rails), dtype=float), rails.shape)
     part_vol = np.broadcast_to(np.asarray(t.pin.v_ol.at(rails), dtype=float), rails.shape)
     guaranteed = i_ol * np.minimum(1.0, spec_vol / np.maximum(part_vol, 1e-30))
+    # only the rail ends the table gives the mode a point at (Standard-mode has none at
+    # 2 V and below: a rail across 2 V is held to VOL1 at its top end alone)
+    given = np.array([lim.states_sink(float(x)) for x in rails.ravel()]).reshape(rails.shape)
+    if not given.any():
+        return
+    guaranteed = np.where(given, guaranteed, np.inf)
     at = int(np.argmin(guaranteed))
     least = float(guaranteed.flat[at])
     if not least < float(d_iol.value) * (1.0 - 1e-9):

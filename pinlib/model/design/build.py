@@ -128,6 +128,22 @@ def _bus(rb: RawBus, bloc, ids: set[str], r: _Resolver, homes: dict) -> Bus:
     return _push_pull_bus(rb, bloc, r.device, r.sections, err, homes)
 
 
+def _outputs_in_order(d, name: str, pin, rail: float, err) -> None:
+    """Refuse a device whose part has an output pin with ``v_oh`` at or below ``v_ol`` on
+    the device's rail: its high level would lie under its low one, and every level check
+    of its line would read nonsense (a fuzz found 0.5 VDD against 0.6 VDD accepted)."""
+    if pin.v_oh is None or pin.v_ol is None:
+        return
+    lo, hi = float(pin.v_ol.at(rail)), float(pin.v_oh.at(rail))
+    if hi <= lo:
+        where = pin.v_oh.origin_file or pin.v_ol.origin_file
+        raise err(M.OUTPUT_LEVELS_INVERTED_AT_RAIL.format(
+            pin=name, v_oh=format_si(hi, "V"), v_ol=format_si(lo, "V"),
+            rail=format_si(rail, "V")), d.loc + ("part",), value=d.part_id,
+            hint=f"correct the part's values{f' ({where})' if where else ''}, or "
+                 "place a part whose levels suit this rail")
+
+
 def _levels_in_order(bus: Bus, err) -> None:
     """Refuse a device whose part has an input pin with ``v_il`` above ``v_ih`` on the
     device's own rail, nominal (its supply, else its segment's or bus's): no input
@@ -142,6 +158,7 @@ def _levels_in_order(bus: Bus, err) -> None:
             if rail is None:
                 continue
             for name, pin in d.part.pins.items():
+                _outputs_in_order(d, name, pin, rail, err)
                 if pin.v_il is None or pin.v_ih is None:
                     continue
                 lo, hi = float(pin.v_il.at(rail)), float(pin.v_ih.at(rail))
