@@ -1472,6 +1472,8 @@ def test_a_level_beyond_its_rated_current_is_held_to_its_rating(tmp_path):
     low = _rated_levels(tmp_path, pullup=', pullup = "4.7 kΩ"')["level-low"]
     assert low.value == pytest.approx(3.3 - 100e-6 * 4700 * 0.99, rel=1e-9)
     assert low.status == "fail" and "held to its rating" in low.message
+    # the pull-up is what holds it there: the fix says so, not a receiver's VIL
+    assert low.fix.startswith("a larger pull-up (lines.en.pullup")
     # a high side rated 1.2 V down at 10 µA under 20 µA of leakage: no level above ground
     # is guaranteed (the straight line through the point had read -1.1 V)
     high = _rated_levels(tmp_path, drop_h="1.2 V", i_oh="10 µA")["level-high"]

@@ -315,7 +315,7 @@ def _level_checks(a: LineAnalysis, rx: Endpoint, d: Endpoint, c, v_il: float, v_
     if mend and v_ol > v_il * (1.0 - warn) and v_il > 0 and warn < 1:
         vol = fmt_below(v_il * (1.0 - warn), "V")
         vil = v_ol / (1.0 - warn)
-        if d.pin.drive == "open-drain":
+        if d.pin.drive == "open-drain" or ol_how.startswith(" held"):  # pull-up bound
             low_fix = M.LEVEL_LOW_SINK_FIX.format(signal=signal, driver=d.label, v_ol=vol)
         elif vil > rx.vdd:  # no input on the receiver's rail has such a VIL
             low_fix = M.LEVEL_LOW_FIX_DRIVER.format(v_ol=vol)
