@@ -3254,13 +3254,17 @@ lines.reset = { length = "3 cm", geometry = "g" }
 
 
 @case("PIN_VALUE_AT_SUPPLY", lambda: M.PIN_VALUE_AT_SUPPLY.format(
-    part="mcu-5v", ref="U1", bus="s", vdd="500 mV", where="{design}:10"))
+    part="hi-oh", ref="U1", bus="s", vdd="3.3 V", where="{design}:10"))
 def _(env):
     from pinlib.engines.dispatch import check_design
 
-    # the lowest rail a design takes: the 5 V controller's VDD - 0.8 V is negative
-    design = env.design(SPI_BUS.replace('supply = "3.3 V"', 'supply = "0.5 V"')
-                        .replace('part = "mcu-3v3"', 'part = "mcu-5v"'))
+    # an invented team controller whose SCLK states VOH at its supply: a driver model
+    # needs a drop from the rail, and the error names the part's value at this rail
+    env.write("team/hi-oh.toml", 'format = "pinlib.part/1"\nid = "hi-oh"\n'
+              'title = "VOH at the rail (invented)"\nextends = "mcu-3v3"\n'
+              '[pins.sclk]\nv_oh = "VDD"\n')
+    design = env.design(SPI_BUS.replace('part = "mcu-3v3"', 'part = "hi-oh"'),
+                        library_folders=[env.tmp / "team"])
     err = _fails(lambda e: check_design(design), env)
     return err.message.replace(str(design.path), "{design}")
 
