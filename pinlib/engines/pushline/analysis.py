@@ -45,6 +45,12 @@ class LineAnalysis:
         Series resistor used. [Ω]
     rs_ideal : float or None
         ``Z0 - r_out`` when "auto" considered it, of the Z0 it matched. [Ω]
+    z0 : float
+        The line's Z0: of the stretch at the driver (:meth:`z0_at`), on a line of several
+        drivers (CIPO) the strongest push-pull driver's, the one "auto" matches
+        (:meth:`matched_driver`); NaN where no stretch has a delay.  Set once the
+        drivers' models are made (:func:`~pinlib.engines.pushline.line._driver_models`),
+        then read many times. [Ω]
     z0_matched : float or None
         The Z0 "auto" matched when it chose a resistor: :attr:`z0` (the stretch at the
         driver) unless another section's match brought a check to a better standing. [Ω]
@@ -74,6 +80,7 @@ class LineAnalysis:
     unterminated: dict | None = None
     rs: float = 0.0
     rs_ideal: float | None = None
+    z0: float = math.nan
     z0_matched: float | None = None
     long: bool = False
     ratio: float = 0.0
@@ -94,14 +101,6 @@ class LineAnalysis:
         if self.net is not None:
             return self.net.farthest_delay([self.net.node(d.ref) for d in self.drivers])
         return sum(s.td for s in self.stretches)
-
-    @property
-    def z0(self) -> float:
-        """The line's Z0: of the stretch at the driver (:meth:`z0_at`), on a line of
-        several drivers (CIPO) the strongest push-pull driver's, the one "auto" matches
-        (:meth:`matched_driver`); NaN where no stretch has a delay. [Ω]"""
-        d = self.matched_driver()
-        return self.z0_at(d.ref if d is not None else None)
 
     def z0_at(self, ref: str | None) -> float:
         """Z0 of the stretch at driver ``ref``'s point: on a route the first stretch with

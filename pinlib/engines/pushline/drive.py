@@ -226,6 +226,16 @@ def open_drain_pullup(line: Line, loads: Sequence[Endpoint],
     return _pullups(others, driver, _own_pullup(line, driver))
 
 
+def net_pullups(line: Line, loads: Sequence[Endpoint],
+                drivers: Sequence[Endpoint]) -> dict[str, tuple[float | None, float]]:
+    """By driver reference, the pull-ups its net carries and their rail
+    (:func:`open_drain_pullup`), or ``(None, the driver's rail)`` on a net without any:
+    most push-pull lines have none, found in one look at the line. [Ω, V]"""
+    pulled = line.pullup is not None or any(carried_pullup(p) for p in loads)
+    return {d.ref: open_drain_pullup(line, loads, d) if pulled else (None, d.vdd)
+            for d in drivers}
+
+
 def _own_pullup(line: Line, driver: Endpoint) -> tuple[float, float] | None:
     """The line's own resistor and the rail it pulls to (the bus supply, set where the
     line is analysed; the driver's rail where it is not), or None. [Ω, V]"""

@@ -24,8 +24,8 @@ from pinlib.engines.pushline.drive import (
     _driver_model,
     _open_drain_model,
     _own_pullup,
-    carried_pullup,
     net_leakage,
+    net_pullups,
     open_drain_pullup,
 )
 from pinlib.engines.pushline.pins import Endpoint
@@ -455,6 +455,8 @@ def _driver_models(a: LineAnalysis, res: LineResult) -> dict:
         else:
             a.models[d.ref] = _driver_model(d, res.notes)
     a.drivers = [d for d in a.drivers if d not in stuck]
+    matched = a.matched_driver()
+    a.z0 = a.z0_at(matched.ref if matched is not None else None)
     return pullup
 
 
@@ -580,10 +582,8 @@ def _add_checks(a: LineAnalysis, res: LineResult, clock, clock_line, warn_margin
     if a.line.series_resistor == "auto":
         res.add(_termination_check(a))
     # the open-drain drivers' pull-ups as _driver_models found them; a push-pull
-    # driver's only where the line has any (most have none: one look at it)
-    pulled = a.line.pullup is not None or any(carried_pullup(p) for p in a.loads)
-    pullups = {**{d.ref: open_drain_pullup(a.line, a.loads, d) for d in a.drivers
-                  if pulled and d.ref not in pullup}, **pullup}
+    # driver's where the line has any
+    pullups = {**net_pullups(a.line, a.loads, a.drivers), **pullup}
     sinks, notes = sink_checks(a, pullups, warn_margin)
     for c in sinks:
         res.add(c)

@@ -10,7 +10,7 @@ import numpy as np
 from pinlib.core import messages as M
 from pinlib.core.labels import plural_s
 from pinlib.engines.pushline.analysis import LineAnalysis, _fmt, _others, fmt_above, fmt_below
-from pinlib.engines.pushline.drive import carried_pullup, net_leakage, open_drain_pullup
+from pinlib.engines.pushline.drive import net_leakage, net_pullups
 from pinlib.engines.pushline.pins import Endpoint
 from pinlib.engines.pushline.rules import (
     _RINGING_SOURCE,
@@ -33,6 +33,11 @@ def _si_checks(a: LineAnalysis, cases: dict, clock: float | None, clock_line: bo
     for p in a.loads:
         checks += _swing_checks(p, table, warn)
     drivers = {d.ref: d for d in a.drivers}
+    # what each driver's DC level is loaded with: the net's pull-ups, the other pins'
+    # leakage (once per line, not per receiver)
+    pullups = net_pullups(a.line, a.loads, a.drivers)
+    dc_load = {ref: (*pullups[ref], net_leakage(_others(a.loads, d)))
+               for ref, d in drivers.items()}
     # behind a bridging part a device on another rail fails by the model's limit (its
     # far side is not modelled, and a note says so), not for want of a translator
     bridged = any(p.device.is_bridge for p in a.loads)
@@ -45,8 +50,8 @@ def _si_checks(a: LineAnalysis, cases: dict, clock: float | None, clock_line: bo
             checks.append(_transition_check(rx, cases, a.net is not None, warn, a.signal))
         for ref, c in cases.items():
             if ref != rx.ref:
-                checks += _level_checks(a, rx, drivers[ref], c, v_il, v_ih, warn,
-                                        named=len(drivers) > 1, advise=not bridged)
+                checks += _level_checks(a, rx, drivers[ref], c, dc_load[ref], v_il, v_ih,
+                                        warn, named=len(drivers) > 1, advise=not bridged)
     if clock and a.net is not None:
         checks += [_edge_check(cases, clock, warn, rx) for rx in a.receivers]
     elif clock:
@@ -204,11 +209,14 @@ def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
                                     + (f" ({whose})" if whose else ""))
 
 
-def _driver_levels(d: Endpoint, c, a: LineAnalysis) -> tuple[float, str, float, str, str, str]:
+def _driver_levels(d: Endpoint, c, rs: float,
+                   load: tuple) -> tuple[float, str, float, str, str, str]:
     """A driver's VOH, its source, VOL, its source, and how each was taken (words for the
     message, empty where the level is the part's as stated): an open-drain driver's from
     the pull-up and sink on the net; a push-pull one's from its part's rated point at
-    the current the line draws (:func:`_rated_at_load`), or rail to rail."""
+    the current the line draws (:func:`_rated_at_load`; ``rs`` the line's series
+    resistor, ``load`` its pull-ups, their rail and the other pins' leakage), or rail
+    to rail."""
     if d.pin.drive == "open-drain":
         src = f"{d.label}: pull-up and sink on the net"
         return c.v_high, src, _guaranteed_low(d, c), src, "", ""
@@ -220,15 +228,15 @@ def _driver_levels(d: Endpoint, c, a: LineAnalysis) -> tuple[float, str, float, 
     if v_oh is None:
         v_oh, oh_src = d.vdd, f"{d.label}: rail-to-rail CMOS output assumed"
     elif d.pin.i_oh is not None:
-        v_oh, oh_how = _rated_at_load(d, a, d.vdd, v_oh, float(d.pin.i_oh.at()))
+        v_oh, oh_how = _rated_at_load(d, rs, load, d.vdd, v_oh, float(d.pin.i_oh.at()))
     if v_ol is None:
         v_ol, ol_src = 0.0, f"{d.label}: rail-to-rail CMOS output assumed"
     elif d.pin.i_ol is not None:
-        v_ol, ol_how = _rated_at_load(d, a, 0.0, v_ol, float(d.pin.i_ol.at()))
+        v_ol, ol_how = _rated_at_load(d, rs, load, 0.0, v_ol, float(d.pin.i_ol.at()))
     return v_oh, oh_src, v_ol, ol_src, oh_how, ol_how
 
 
-def _rated_at_load(d: Endpoint, a: LineAnalysis, v_src: float, rated: float,
+def _rated_at_load(d: Endpoint, rs: float, load: tuple, v_src: float, rated: float,
                    i_rated: float) -> tuple[float, str]:
     """A push-pull driver's level on the line at the current the line draws, and words
     saying so.
@@ -247,10 +255,8 @@ def _rated_at_load(d: Endpoint, a: LineAnalysis, v_src: float, rated: float,
         return rated, ""
     high = v_src > 0.0
     r_src = abs(v_src - rated) / i_rated
-    r = r_src + a.rs
-    pulled = a.line.pullup is not None or any(carried_pullup(p) for p in a.loads)
-    rp, rail = open_drain_pullup(a.line, a.loads, d) if pulled else (None, d.vdd)
-    leak = net_leakage(_others(a.loads, d))
+    r = r_src + rs
+    rp, rail, leak = load
     # leakage takes the level away from the rail it is driven to: out of a high pin,
     # into a low one
     level = loaded_level(v_src, r, leak if high else -leak, rp, rail)
@@ -259,7 +265,7 @@ def _rated_at_load(d: Endpoint, a: LineAnalysis, v_src: float, rated: float,
     pin = (v_src - level if high else level) / r if r > 0.0 else leak
     name, way = ("VOH", "sources") if high else ("VOL", "sinks")
     rating = f"its {name} is rated {_fmt(rated, 'V')} at {_fmt(i_rated, 'A')}"
-    through = f", with the series resistor {_fmt(a.rs, 'Ω')}" if a.rs > 0.0 else ""
+    through = f", with the series resistor {_fmt(rs, 'Ω')}" if rs > 0.0 else ""
     if pin > i_rated * (1.0 + 1e-9):
         if high:  # where the load takes i_rated: a pull-up to a lower rail, else ground
             held = rail + (i_rated - leak) * rp if rp is not None else 0.0
@@ -292,13 +298,14 @@ def _guaranteed_low(d: Endpoint, c) -> float:
     return float(held_low_level(c.v_low, c.v_high, rp, float(i_ol.at())))
 
 
-def _level_checks(a: LineAnalysis, rx: Endpoint, d: Endpoint, c, v_il: float, v_ih: float,
-                  warn: float, named: bool = False, advise: bool = True) -> list[Check]:
+def _level_checks(a: LineAnalysis, rx: Endpoint, d: Endpoint, c, load: tuple, v_il: float,
+                  v_ih: float, warn: float, named: bool = False,
+                  advise: bool = True) -> list[Check]:
     """A driver's VOH/VOL against one receiver's VIH/VIL; ``named``: the line has more
     than one driver, and the subject names this one (``U3 from U1``); ``advise``: a
     level short of its threshold across two rails has a fix (none behind a bridging
     part, whose far side is not modelled)."""
-    v_oh, oh_src, v_ol, ol_src, oh_how, ol_how = _driver_levels(d, c, a)
+    v_oh, oh_src, v_ol, ol_src, oh_how, ol_how = _driver_levels(d, c, a.rs, load)
     signal = a.signal
     subject = f"{rx.ref} from {d.ref}" if named else rx.ref
     fix = None

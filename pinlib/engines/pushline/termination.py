@@ -216,9 +216,9 @@ def auto_ideal(a: LineAnalysis) -> tuple[float, float | None]:
     rise and fall, at its fast corner where its part states one: the corner that rings;
     NaN with none) and ``Z0 - r_out`` (None when either is unknown), Z0 of the stretch at
     that driver. [Ω]"""
-    r_drv = min(matched_resistance(a.models[d.ref]) for d in a.drivers
-                if d.pin.drive != "open-drain") \
-        if any(d.pin.drive != "open-drain" for d in a.drivers) else math.nan
+    d = a.matched_driver()
+    r_drv = (matched_resistance(a.models[d.ref])
+             if d is not None and d.pin.drive != "open-drain" else math.nan)
     return r_drv, (a.z0 - r_drv if math.isfinite(a.z0) and math.isfinite(r_drv) else None)
 
 
