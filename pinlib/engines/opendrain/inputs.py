@@ -220,6 +220,14 @@ def _default(seg_in: SegmentInputs, text: str, where: str) -> None:
         seg_in.defaults[text].append(where)
 
 
+def _rail_ends(tap: _Tap, v: np.ndarray, tol: float) -> np.ndarray:
+    """The rails a pin's values are taken at: the two ends of the device's own rail,
+    or the pull-up rail's corners ``v``. [V]"""
+    if not tap.own:
+        return np.asarray(v, dtype=float)
+    return np.array([tap.vdd * (1 - tol), tap.vdd * (1 + tol)])
+
+
 def _corner_values(value: Sourced, tap: _Tap, v: np.ndarray, tol: float, worst: str,
                    follow_bus: bool = False):
     """A part value at each rail corner: following the pull-up rail, or the worst end of
@@ -227,8 +235,7 @@ def _corner_values(value: Sourced, tap: _Tap, v: np.ndarray, tol: float, worst: 
     at the pull-up rail even for a device on its own rail. [unit]"""
     if not tap.own or follow_bus:
         return np.broadcast_to(np.asarray(value.at(v), dtype=float), v.shape).astype(float)
-    own = np.array([tap.vdd * (1 - tol), tap.vdd * (1 + tol)])
-    vals = np.asarray(value.at(own), dtype=float)
+    vals = np.asarray(value.at(_rail_ends(tap, v, tol)), dtype=float)
     return np.full(v.shape, float(vals.min() if worst == "min" else vals.max()))
 
 
@@ -339,7 +346,7 @@ def _refuse_below_ground(v_ol: np.ndarray, value: Sourced, tap: _Tap, v: np.ndar
     worst = float(np.min(v_ol))
     if worst >= 0.0:
         return
-    ends = np.array([tap.vdd * (1 - vtol), tap.vdd * (1 + vtol)]) if tap.own else v
+    ends = _rail_ends(tap, v, vtol)
     vals = np.asarray(value.at(ends), dtype=float)
     # where the value was taken: the lowest rail corner, or the own rail's end it used
     at = float(ends[int(np.argmax(vals) if tap.own else np.argmin(vals))])
@@ -391,8 +398,7 @@ def _below_spec_sink(seg_in: SegmentInputs, t: _Tap, i_ol: float, d_vol: Sourced
     each end of the pin's own (VOL2 and a relative v_ol follow it), and the note gives
     the end of least current.  The pull-up window already follows the pin's own rating:
     the note says that the part is off the specification."""
-    rails = (np.array([t.vdd * (1 - seg_in.vtol), t.vdd * (1 + seg_in.vtol)]) if t.own
-             else np.asarray(seg_in.vdd, dtype=float))
+    rails = _rail_ends(t, seg_in.vdd, seg_in.vtol)
     spec_vol = np.broadcast_to(np.asarray(d_vol.at(rails), dtype=float), rails.shape)
     part_vol = np.broadcast_to(np.asarray(t.pin.v_ol.at(rails), dtype=float), rails.shape)
     guaranteed = i_ol * np.minimum(1.0, spec_vol / np.maximum(part_vol, 1e-30))
