@@ -137,12 +137,18 @@ def _outputs_in_order(d, name: str, pin, rail: float, err) -> None:
     lo, hi = float(pin.v_ol.at(rail)), float(pin.v_oh.at(rail))
     # a level below ground is the driver model's to refuse, at the part's own field
     if 0.0 <= hi <= lo:
-        where = pin.v_oh.origin_file or pin.v_ol.origin_file
         raise err(M.OUTPUT_LEVELS_INVERTED_AT_RAIL.format(
             pin=name, v_oh=format_si(hi, "V"), v_ol=format_si(lo, "V"),
             rail=format_si(rail, "V")), d.loc + ("part",), value=d.part_id,
-            hint=f"correct the part's values{f' ({where})' if where else ''}, or "
-                 "place a part whose levels suit this rail")
+            hint=_levels_hint(pin.v_oh, pin.v_ol))
+
+
+def _levels_hint(*values) -> str:
+    """What to do about a part's levels that cross on a device's rail, naming the file
+    that set them where one did."""
+    where = next((v.origin_file for v in values if v.origin_file), None)
+    return (f"correct the part's values{f' ({where})' if where else ''}, or place a part "
+            "whose levels suit this rail")
 
 
 def _levels_in_order(bus: Bus, err) -> None:
@@ -164,9 +170,7 @@ def _levels_in_order(bus: Bus, err) -> None:
                     continue
                 lo, hi = float(pin.v_il.at(rail)), float(pin.v_ih.at(rail))
                 if lo > hi:
-                    where = pin.v_il.origin_file or pin.v_ih.origin_file
                     raise err(M.THRESHOLDS_INVERTED_AT_RAIL.format(
                         pin=name, v_il=format_si(lo, "V"), v_ih=format_si(hi, "V"),
                         rail=format_si(rail, "V")), d.loc + ("part",), value=d.part_id,
-                        hint=f"correct the part's values{f' ({where})' if where else ''}, or "
-                             "place a part whose levels suit this rail")
+                        hint=_levels_hint(pin.v_il, pin.v_ih))
