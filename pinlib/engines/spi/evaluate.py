@@ -14,6 +14,7 @@ from pinlib.engines.pushline import (
 from pinlib.engines.pushline.analysis import fmt_above, fmt_below
 from pinlib.engines.spi.analysis import SpiAnalysis, spi_analysis
 from pinlib.engines.spi.budget import Term
+from pinlib.engines.spi.margins import max_clock
 from pinlib.engines.spi.modecheck import mode_checks
 from pinlib.engines.spi.modes import (
     CS_ASSUMED,
@@ -289,7 +290,7 @@ def _timing_fix(t: Term, avail: float, passing: float) -> str:
         if "lag" in parts:
             return M.TIMING_CS_LAG_FIX.format(lag=_fmt(float(lead), "s"), need=need)
         return M.TIMING_CS_LEAD_FIX.format(lead=_fmt(float(lead), "s"), need=need)
-    clock = fmt_below(t.a / (passing - t.b), "Hz")
+    clock = fmt_below(float(max_clock([t.a], [passing - t.b])), "Hz")
     out = M.TIMING_CLOCK_FIX.format(clock=clock)
     if t.id == "copi-setup":
         out += M.TIMING_COPI_SETUP_ALT.format(ref=t.subject, copi=_fmt(parts["copi_late"], "s"),
