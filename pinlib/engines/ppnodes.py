@@ -19,7 +19,7 @@ from pinlib.engines import pushpull as pp
 from pinlib.engines.ppvariant import number_or_nan as _num
 from pinlib.engines.spi.budget import EDGE_FIELDS
 from pinlib.model.design import Bus, Design
-from pinlib.model.result import STATUS_CODES, status_codes
+from pinlib.model.result import STATUS_CODES, status_codes, warns_only
 
 __all__ = ["FIELDS", "Refused", "evaluate", "flight_slots", "plan", "record", "supply_plan"]
 
@@ -116,8 +116,9 @@ def plan(names, node_checks, labels, values, sa, bus, design) -> list:
             else:
                 raise Refused(f"{nm['name']}: not finite at every node")
         has_margin = c0.margin is not None
-        # a rule of thumb warns where its margin would fail (model.result.rule_of_thumb)
-        cap = 1 if c0.details.get("rule_of_thumb") else 2
+        # a rule of thumb, or a limit no datasheet stands behind, warns where its margin
+        # would fail (model.result.warns_only)
+        cap = 1 if warns_only(c0) else 2
         by_margin = has_margin and all(STATUS_CODES[c.status] == min(int(status_codes(
             np.array([_num(c.margin)]), warn)[0]), cap) for c in at_nodes)
         if not by_margin and len(codes) != 1:

@@ -307,7 +307,8 @@ def _a_rail(v):
 
 
 class Provenance(Record):
-    basis: Literal["generic", "datasheet", "measured", "estimate", "ibis"] = "generic"
+    basis: Literal["generic", "datasheet", "measured", "estimate", "ibis", "published"] = \
+        "generic"
     source: str = ""
     recorded: _dt.date | None = None
     by: str | None = None

@@ -22,8 +22,14 @@ __all__ = ["BASES", "Sourced", "StatedList", "sourced_parser", "threshold_parser
            "modes_parser"]
 
 #: How a value was obtained ("ibis": read or derived by arithmetic from an IBIS file;
-#: "derived" is set by pinlib itself and stays last).
-BASES = ("generic", "datasheet", "measured", "estimate", "ibis", "derived")
+#: "published": the limit a published standard sets for every part of its kind, quoted
+#: as its source; "derived" is set by pinlib itself and stays last).
+BASES = ("generic", "datasheet", "measured", "estimate", "ibis", "published", "derived")
+
+#: The bases of a value that neither a datasheet, a measurement nor a published
+#: standard stands behind (a class's typical value, an estimate).  A check whose limit
+#: rests on one warns where it would fail (:func:`pinlib.model.result.soft_limit`).
+SOFT_BASES = ("generic", "estimate")
 
 _TABLE_KEYS = {"value", "basis", "source", "typ"}
 
@@ -53,6 +59,9 @@ class Sourced:
     file_filled : tuple of str
         ``("basis", "source")`` when the value states neither and takes both from the
         provenance of the file that set it (not of the part that inherits it).
+    file_basis : str or None
+        The basis of the file that set it (its provenance's), for a value that states a
+        source of its own and no basis: what :attr:`rests_on` falls back to.
     """
 
     value: Any
@@ -64,10 +73,23 @@ class Sourced:
     origin: str | None = None
     origin_file: str | None = None
     file_filled: tuple = ()
+    file_basis: str | None = None
 
     @property
     def derived(self) -> bool:
         return self.basis == "derived"
+
+    @property
+    def rests_on(self) -> str | None:
+        """The basis the value rests on: its own, else that of the file that set it
+        (None for a value that was never in a part file, e.g. a test's)."""
+        return self.basis or self.file_basis
+
+    @property
+    def soft(self) -> bool:
+        """True when no datasheet, measurement or standard stands behind the value
+        (:data:`SOFT_BASES`)."""
+        return self.rests_on in SOFT_BASES
 
     def at(self, vdd=None):
         """The value as a number; a threshold is resolved at ``vdd``. [unit]"""
@@ -92,6 +114,8 @@ class Sourced:
             changes["basis"] = provenance.get("basis") or "generic"  # the format's default
             changes["source"] = provenance.get("source") or None
             changes["file_filled"] = ("basis", "source")
+        elif provenance is not None and self.basis is None:
+            changes["file_basis"] = provenance.get("basis") or "generic"
         # A copy of the instance dict with the origin set: dataclasses.replace (which
         # runs __init__ through the field list) is five times slower, and a library load
         # stamps every value of every part.
@@ -165,6 +189,11 @@ class StatedList(tuple):
             out.basis = self.basis or prov.get("basis") or "generic"
             out.source = self.source
         return out
+
+    @property
+    def soft(self) -> bool:
+        """As :attr:`Sourced.soft`."""
+        return self.basis in SOFT_BASES
 
     def cited(self, field: str) -> str:
         """``'nor-flash-spi spi_modes: typical of the class'``: the part that set it, the

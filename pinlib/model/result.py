@@ -33,6 +33,8 @@ __all__ = [
     "PERCENT_TINY",
     "figure_text",
     "rule_of_thumb",
+    "soft_limit",
+    "warns_only",
     "min_margin",
     "max_margin",
     "status_codes",
@@ -349,6 +351,50 @@ def rule_of_thumb(check: Check) -> Check:
         check.status = "warn"
         check.message += " (a rule of thumb: a warning, not a failure)"
     return check
+
+
+#: What a check whose limit rests on a soft value (:data:`SOFT_BASES`) adds to its
+#: message where it would fail, by that value's basis.
+SOFT_LIMIT_NOTE = {
+    "generic": " (the limit is a value typical of the part's class, not its datasheet's: "
+               "a warning, not a failure)",
+    "estimate": " (the limit is an estimate, not a datasheet's: a warning, not a failure)",
+}
+SOFT_LIMIT_FIX = ("record the part's {what} from its datasheet (pinlib parts record) to "
+                  "make this check a firm one")
+
+
+def soft_limit(check: Check, *values, what: str = "value") -> Check:
+    """``check`` against a limit that rests on ``values`` (each a
+    :class:`~pinlib.library.values.Sourced` or :class:`~pinlib.library.values.StatedList`,
+    or None): where any of them is soft (a class's typical value, an estimate: no
+    datasheet, measurement or standard behind it) the check warns where it would fail,
+    as a rule of thumb does (a check fails only against a published or datasheet limit
+    or a physical impossibility).  Its margin and numbers are unchanged;
+    ``details["limit_basis"]`` names the basis, and a failing check says so and how to
+    make it firm (``what``: the value to record, e.g. ``"VIH"``)."""
+    soft = [v for v in values if v is not None and getattr(v, "soft", False)]
+    if not soft:
+        return check
+    basis = "generic" if any(_rests_on(v) == "generic" for v in soft) else "estimate"
+    check.details = {**check.details, "limit_basis": basis}
+    if check.status == "fail":
+        check.status = "warn"
+        check.message += SOFT_LIMIT_NOTE[basis]
+        firm = SOFT_LIMIT_FIX.format(what=what)
+        check.fix = firm if not check.fix else f"{check.fix}; or {firm}"
+    return check
+
+
+def _rests_on(value) -> str | None:
+    return getattr(value, "rests_on", getattr(value, "basis", None))
+
+
+def warns_only(check: Check) -> bool:
+    """True when ``check`` warns where its margin would fail: a rule of thumb
+    (:func:`rule_of_thumb`) or a limit that rests on a soft value (:func:`soft_limit`).
+    The array paths (corners, Monte Carlo tables) cap its status at a warning."""
+    return bool(check.details.get("rule_of_thumb")) or "limit_basis" in check.details
 
 
 def check_true(id, ok, source, message, **kw) -> Check:
