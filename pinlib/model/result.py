@@ -34,6 +34,8 @@ __all__ = [
     "figure_text",
     "rule_of_thumb",
     "soft_limit",
+    "soft_basis",
+    "soften",
     "warns_only",
     "min_margin",
     "max_margin",
@@ -364,19 +366,32 @@ SOFT_LIMIT_FIX = ("record the part's {what} from its datasheet (pinlib parts rec
                   "make this check a firm one")
 
 
-def soft_limit(check: Check, *values, what: str = "value") -> Check:
-    """``check`` against a limit that rests on ``values`` (each a
+def soft_basis(*values) -> str | None:
+    """The soft basis a limit resting on ``values`` has (each a
     :class:`~pinlib.library.values.Sourced` or :class:`~pinlib.library.values.StatedList`,
-    or None): where any of them is soft (a class's typical value, an estimate: no
-    datasheet, measurement or standard behind it) the check warns where it would fail,
-    as a rule of thumb does (a check fails only against a published or datasheet limit
-    or a physical impossibility).  Its margin and numbers are unchanged;
-    ``details["limit_basis"]`` names the basis, and a failing check says so and how to
-    make it firm (``what``: the value to record, e.g. ``"VIH"``)."""
-    soft = [v for v in values if v is not None and getattr(v, "soft", False)]
-    if not soft:
+    or None): ``"generic"`` where any of them is a class's typical value, else
+    ``"estimate"`` where any is an estimate, else None (a datasheet, a measurement or a
+    standard stands behind every one, or nothing says otherwise)."""
+    bases = {getattr(v, "rests_on", getattr(v, "basis", None)) for v in values
+             if v is not None and getattr(v, "soft", False)}
+    return "generic" if "generic" in bases else ("estimate" if bases else None)
+
+
+def soft_limit(check: Check, *values, what: str = "value") -> Check:
+    """``check`` against a limit that rests on ``values`` (as :func:`soft_basis`): where
+    any of them is soft (no datasheet, measurement or standard behind it) the check warns
+    where it would fail, as a rule of thumb does (a check fails only against a published
+    or datasheet limit or a physical impossibility); :func:`soften`."""
+    return soften(check, soft_basis(*values), what=what)
+
+
+def soften(check: Check, basis: str | None, *, what: str = "value") -> Check:
+    """``check`` against a limit of soft ``basis`` (``"generic"``, ``"estimate"``; None:
+    a firm limit, the check unchanged).  Its margin and numbers are unchanged;
+    ``details["limit_basis"]`` names the basis, and a failing check warns, says why and
+    how to make it firm (``what``: the value to record, e.g. ``"VIH"``)."""
+    if basis is None:
         return check
-    basis = "generic" if any(_rests_on(v) == "generic" for v in soft) else "estimate"
     check.details = {**check.details, "limit_basis": basis}
     if check.status == "fail":
         check.status = "warn"
@@ -384,10 +399,6 @@ def soft_limit(check: Check, *values, what: str = "value") -> Check:
         firm = SOFT_LIMIT_FIX.format(what=what)
         check.fix = firm if not check.fix else f"{check.fix}; or {firm}"
     return check
-
-
-def _rests_on(value) -> str | None:
-    return getattr(value, "rests_on", getattr(value, "basis", None))
 
 
 def warns_only(check: Check) -> bool:
