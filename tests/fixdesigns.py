@@ -2,7 +2,8 @@
 ``fix`` of :class:`pinlib.model.result.Check`): used by ``tests/test_fixes.py`` and the
 fix cases of ``tests/test_messages.py``.
 
-Every part and value here is invented test data: team parts that extend the built-in
+Every part and value here is invented test data (its provenance says ``datasheet`` so
+that the checks against it are firm, as a recorded part's are): team parts that extend the built-in
 classes with timing long enough to fail (``slow-adc``), a controller that records its
 CS lead and lag (``lead-mcu``) or a long CIPO hold (``hold-mcu``), and GPIO parts with a
 strong output and a high VOL (``strong-io``) or a weak output (``weak-io``).
@@ -21,6 +22,7 @@ format = "pinlib.part/1"
 id = "slow-adc"
 title = "ADC with long setup, hold and pulse times (invented test data)"
 category = "converter"
+provenance = { basis = "datasheet", source = "test data, invented" }
 extends = "adc-spi"
 
 [timing]
@@ -37,6 +39,7 @@ format = "pinlib.part/1"
 id = "lead-mcu"
 title = "MCU that records its CS lead and lag (invented test data)"
 category = "controller"
+provenance = { basis = "datasheet", source = "test data, invented" }
 extends = "mcu-3v3"
 
 [timing]
@@ -48,6 +51,7 @@ format = "pinlib.part/1"
 id = "hold-mcu"
 title = "MCU with a long CIPO hold (invented test data)"
 category = "controller"
+provenance = { basis = "datasheet", source = "test data, invented" }
 extends = "mcu-3v3"
 
 [timing]
@@ -58,6 +62,7 @@ format = "pinlib.part/1"
 id = "strong-io"
 title = "GPIO part with a strong output and a high VOL (invented test data)"
 category = "controller"
+provenance = { basis = "datasheet", source = "test data, invented" }
 supply = { min = "3.0 V", max = "3.6 V" }
 
 # its levels state no current: taken as stated (a current would have them read at the
@@ -83,6 +88,7 @@ format = "pinlib.part/1"
 id = "weak-io"
 title = "GPIO part with a weak output (invented test data)"
 category = "controller"
+provenance = { basis = "datasheet", source = "test data, invented" }
 supply = { min = "3.0 V", max = "3.6 V" }
 
 [pins.out]

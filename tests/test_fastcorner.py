@@ -26,7 +26,7 @@ id = "{id}"
 title = "Test output, invented"
 category = "logic"
 supply = {{ min = "3.0 V", max = "3.6 V" }}
-provenance = {{ basis = "estimate", source = "test data, invented" }}
+provenance = {{ basis = "datasheet", source = "test data, invented" }}
 
 [pins.sclk]
 function = "spi-sclk"

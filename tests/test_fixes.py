@@ -114,8 +114,10 @@ def _by_line(tmp_path, body, capsys) -> dict[str, list[dict]]:
 def test_overshoot_without_a_resistor_names_auto_and_auto_clears_it(tmp_path, capsys):
     lines = _by_line(tmp_path, SPI_FAST, capsys)
     for sig in ("copi", "cs"):
-        over = [c for c in lines[sig] if c["id"] == "overshoot" and c["status"] == "fail"]
-        assert over and {c["fix"] for c in over} == {
+        # beyond the classes' abs_max (typical values: a warning, the fix the same)
+        over = [c for c in lines[sig] if c["id"] == "overshoot" and c["margin"] < 0]
+        assert over and all(c["status"] == "warn" for c in over)
+        assert {c["fix"] for c in over} == {
             M.SWING_FIX_AUTO.format(signal=sig, rs="36 Ω")}
     fixed = (SPI_FAST.replace("lines.copi = { route",
                               'lines.copi = { series_resistor = "auto", route')
@@ -124,7 +126,7 @@ def test_overshoot_without_a_resistor_names_auto_and_auto_clears_it(tmp_path, ca
     for sig in ("copi", "cs"):
         # the resistor auto fits is the one the fix named, and no overshoot fails
         assert _one(lines[sig], "series-termination")["value"] == pytest.approx(36.0)
-        assert not [c for c in lines[sig] if c["id"] == "overshoot" and c["status"] == "fail"]
+        assert not [c for c in lines[sig] if c["id"] == "overshoot" and c["margin"] < 0]
 
 
 def test_the_auto_value_is_z0_less_r_out_to_e24(tmp_path, capsys):

@@ -213,7 +213,7 @@ id = "pp-weak-sink"
 title = "Test weak open-drain output, 3.3 V (invented)"
 category = "memory"
 supply = { min = "3.0 V", max = "3.6 V" }
-provenance = { basis = "estimate", source = "test data, invented" }
+provenance = { basis = "datasheet", source = "test data, invented" }
 
 [pins.irq]
 function = "gpio"

@@ -3600,6 +3600,35 @@ def _(env):
     return _fix_of(env, _spi("SPI_FAST"), "edge-time")
 
 
+def _message_of(env, body: str, check_id: str, subject: str) -> str:
+    """The message of ``check_id`` of ``subject`` in the JSON of ``pinlib check`` on a
+    design of ``body`` (tests/fixdesigns.py)."""
+    from tests.fixdesigns import write_design
+
+    main(["check", str(write_design(env.tmp, body)), "--json"])
+    doc = json.loads(env.capsys.readouterr().out)
+    return next(c["message"] for c in _checks_of(doc)
+                if c["id"] == check_id and c.get("subject") == subject)
+
+
+@case("SOFT_LIMIT_GENERIC", M.SOFT_LIMIT_GENERIC.format(what="f_max"))
+def _(env):
+    # the built-in adc-spi's f_max, 20 MHz, is typical of its class, at a 25 MHz clock
+    return _message_of(env, _spi("SPI_FAST"), "f-max", "U3")
+
+
+@case("SOFT_LIMIT_ESTIMATE", M.SOFT_LIMIT_ESTIMATE.format(what="f_max"))
+def _(env):
+    # the same f_max recorded as an estimate (invented test data)
+    (env.tmp / "team").mkdir(parents=True, exist_ok=True)
+    (env.tmp / "team" / "est-adc.toml").write_text(
+        'format = "pinlib.part/1"\nid = "est-adc"\ntitle = "ADC (invented test data)"\n'
+        'extends = "adc-spi"\n\n[timing]\nf_max = { value = "20 MHz", basis = "estimate" }\n',
+        encoding="utf-8")
+    body = _spi("SPI_FAST").replace('part = "adc-spi"', 'part = "est-adc"')
+    return _message_of(env, body, "f-max", "U3")
+
+
 @case("LEVEL_HIGH_FIX", M.LEVEL_HIGH_FIX.format(v_ih="2.18 V", v_oh="2.55 V"))
 def _(env):
     return _fix_of(env, _gpio('{ length = "20 cm", geometry = "g" }'), "level-high")

@@ -196,7 +196,7 @@ id = "t-target-leaky"
 title = "Test target leaking 10 µA a pin (test data, invented)"
 category = "sensor"
 extends = "t-target"
-provenance = { basis = "estimate", source = "test data, invented" }
+provenance = { basis = "datasheet", source = "test data, invented" }
 
 [pins.sda]
 c_in = "2 pF"
@@ -424,7 +424,7 @@ def _weak_sink(tmp_path, i_ol: str):
     (lib / "weak.toml").write_text(
         'format = "pinlib.part/1"\nid = "t-weak"\nextends = "t-target"\n'
         f'title = "Test target, {i_ol} sink"\n'
-        'provenance = { basis = "estimate", source = "test data, invented" }\n'
+        'provenance = { basis = "datasheet", source = "test data, invented" }\n'
         f'[pins.sda]\ni_ol = "{i_ol}"\n', encoding="utf-8")
     path = tmp_path / "d.toml"
     path.write_text(HEAD + one_bus(devices=[

@@ -92,7 +92,7 @@ def _gpio_with_edges(tmp_path):
 id = "pp-ctrl-edges"
 extends = "pp-ctrl"
 title = "Test controller with stated edges (invented)"
-provenance = {{ basis = "estimate", source = "test data, invented" }}
+provenance = {{ basis = "datasheet", source = "test data, invented" }}
 
 [pins.reset]
 edges = [{edges}]

@@ -896,7 +896,7 @@ id = "slow-in"
 title = "Display controller whose dc input states a transition time (invented)"
 category = "display"
 extends = "display-controller-spi"
-provenance = {{ basis = "estimate", source = "test data, invented" }}
+provenance = {{ basis = "datasheet", source = "test data, invented" }}
 
 [pins.dc]
 t_transition_max = "{limit}"
@@ -1095,7 +1095,8 @@ series_resistor = "auto"
 """)
     (ln,) = evaluate_bus(d.bus("stb"), d).lines
     c = next(c for c in ln.checks if c.id == "overshoot" and c.subject == "U3")
-    assert c.status == "fail"
+    # beyond mcu-1v8's abs_max, typical of its class: a warning (no datasheet behind it)
+    assert c.status == "warn" and c.margin < 0 and c.details["limit_basis"] == "generic"
     assert c.fix and "level translator" in c.fix and "series resistor" in c.fix
     # a receiver on the driver's own rail keeps no such fix
     ok = next(c for c in ln.checks if c.id == "overshoot" and c.subject == "U2")
@@ -1121,7 +1122,8 @@ def test_a_high_level_below_vih_across_rails_says_to_shift_the_level(tmp_path):
     d = _builtin_design(tmp_path, _CROSS_RAIL_IRQ)
     (ln,) = evaluate_bus(d.bus("irq"), d).lines
     c = ln.check("level-high")
-    assert c.status == "fail"
+    # against mcu-3v3's VIH, typical of its class: a warning (no datasheet behind it)
+    assert c.status == "warn" and c.margin < 0 and c.details["limit_basis"] == "generic"
     assert c.fix and "1.8 V" in c.fix and "3.3 V" in c.fix and "level translator" in c.fix
     assert not ln.check("level-low").fix
 
@@ -1471,7 +1473,9 @@ def test_a_level_beyond_its_rated_current_is_held_to_its_rating(tmp_path):
     # 4.653 kΩ = 2.835 V), as an open-drain sink's held level; sink-current fails too
     low = _rated_levels(tmp_path, pullup=', pullup = "4.7 kΩ"')["level-low"]
     assert low.value == pytest.approx(3.3 - 100e-6 * 4700 * 0.99, rel=1e-9)
-    assert low.status == "fail" and "held to its rating" in low.message
+    assert "held to its rating" in low.message
+    # against fpga-io-3v3's VIL, from memory in its class: a warning, not a failure
+    assert low.status == "warn" and low.details["limit_basis"] == "generic"
     # the pull-up is what holds it there: the fix says so, not a receiver's VIL
     assert low.fix.startswith("a larger pull-up (lines.en.pullup")
     # a high side rated 1.2 V down at 10 µA under 20 µA of leakage: no level above ground

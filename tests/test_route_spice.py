@@ -60,7 +60,7 @@ id = "pp-weak"
 title = "Test weak GPIO output, 3.3 V (invented)"
 category = "controller"
 supply = {{ min = "3.0 V", max = "3.6 V" }}
-provenance = {{ basis = "estimate", source = "test data, invented" }}
+provenance = {{ basis = "datasheet", source = "test data, invented" }}
 
 [pins.reset]
 function = "gpio"

@@ -195,7 +195,7 @@ id = "pp-periph-slow"
 title = "Test peripheral with a slow read-back"
 category = "memory"
 extends = "pp-periph"
-provenance = { basis = "estimate", source = "test data, invented" }
+provenance = { basis = "datasheet", source = "test data, invented" }
 
 [timing]
 t_valid = "20 ns"
@@ -388,7 +388,7 @@ _FIRST_BIT_PART = """format = "pinlib.part/1"
 id = "pp-periph-cs-out"
 title = "Test peripheral that drives its first CIPO bit when CS asserts (invented)"
 extends = "pp-periph"
-provenance = { basis = "estimate", source = "test data, invented" }
+provenance = { basis = "datasheet", source = "test data, invented" }
 
 [timing]
 t_cs_valid = { value = "T_EN", source = "invented for testing" }

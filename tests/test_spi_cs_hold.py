@@ -24,7 +24,7 @@ def _part(tmp_path, base: str, pid: str, timing: str) -> None:
     (tmp_path / f"{pid}.toml").write_text(
         f'format = "pinlib.part/1"\nid = "{pid}"\ntitle = "test part (invented)"\n'
         f'category = "memory"\nextends = "{base}"\n'
-        'provenance = { basis = "estimate", source = "test data, invented" }\n'
+        'provenance = { basis = "datasheet", source = "test data, invented" }\n'
         f"[timing]\n{timing}", encoding="utf-8")
 
 

@@ -56,10 +56,13 @@ MCU_WITH_LEAD = """format = "pinlib.part/1"
 id = "mcu-3v3-lead"
 title = "mcu-3v3 with a stated CS lead (invented test part)"
 extends = "mcu-3v3"
-provenance = { basis = "estimate", source = "test data, invented" }
+provenance = { basis = "datasheet", source = "test data, invented" }
 
 [timing]
 t_cs_setup = { value = "25 ns", source = "invented test part: CS asserted to first SCLK edge" }
+# mcu-3v3's own t_setup is typical of its class (a check against it warns only): stated
+# here with the file's basis, the first bit's check is a full one
+t_setup = { value = "6 ns", source = "invented test part: CIPO setup" }
 """
 
 
@@ -125,7 +128,13 @@ def test_the_highest_clock_keeps_the_assumed_term_and_says_so(tmp_path, capsys,
     out = " ".join(capsys.readouterr().out.split())
     assert "(set by CIPO first bit U2, on an assumed CS lead)" in out
     assert "WARN spi U2: CIPO first bit" in out and "FAIL spi U2: CIPO first bit" not in out
-    assert code == 1   # the lines' overshoot still fails (a datasheet abs_max)
+    # nothing fails: the lines' overshoot is beyond abs_max ratings typical of their
+    # classes (a warning: no datasheet stands behind them)
+    over = [c for ln in res.lines for c in ln.checks if c.id == "overshoot"
+            and c.margin < 0]
+    assert over and all(c.status == "warn" and c.details["limit_basis"] == "generic"
+                        for c in over)
+    assert code == 0
 
 
 def test_the_controllers_stated_lead_makes_it_a_full_check(tmp_path):
@@ -153,7 +162,7 @@ def _part(tmp_path, base: str, pid: str, timing: str) -> None:
     (tmp_path / f"{pid}.toml").write_text(
         f'format = "pinlib.part/1"\nid = "{pid}"\ntitle = "test part (invented)"\n'
         f'category = "memory"\nextends = "{base}"\n'
-        'provenance = { basis = "estimate", source = "test data, invented" }\n'
+        'provenance = { basis = "datasheet", source = "test data, invented" }\n'
         f"[timing]\n{timing}", encoding="utf-8")
 
 

@@ -664,6 +664,13 @@ SWING_FIX_NO_SERIES = ("a shorter line and stubs, or a driver with slower edges 
 EDGE_TIME_FIX = ("lower the bus clock to {clock} or less, where this check passes, or "
                  "speed the edge (a stronger driver, less load)")
 # pinlib/engines/pushline/sichecks.py: a driver's level against a receiver's threshold
+# A check whose limit is a class's typical value or an estimate, where it would fail
+# (model.result.soften): appended to its message
+SOFT_LIMIT_GENERIC = (" (the limit is a value typical of the part's class, not its "
+                      "datasheet's: a warning, not a failure; recording the part's {what} "
+                      "makes it firm)")
+SOFT_LIMIT_ESTIMATE = (" (the limit is an estimate, not a datasheet's: a warning, not a "
+                       "failure; recording the part's {what} makes it firm)")
 LEVEL_HIGH_FIX = ("a receiver whose VIH is at most {v_ih}, or a driver whose VOH is at least "
                   "{v_oh}, where this check passes")
 # ...where no driver on its rail could give that VOH (it lies above the driver's supply)

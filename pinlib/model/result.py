@@ -13,6 +13,7 @@ import math
 from dataclasses import field
 from typing import Any
 
+from pinlib.core import messages as M
 from pinlib.core.valueclass import value_class
 
 __all__ = [
@@ -356,14 +357,8 @@ def rule_of_thumb(check: Check) -> Check:
 
 
 #: What a check whose limit rests on a soft value (:data:`SOFT_BASES`) adds to its
-#: message where it would fail, by that value's basis.
-SOFT_LIMIT_NOTE = {
-    "generic": " (the limit is a value typical of the part's class, not its datasheet's: "
-               "a warning, not a failure)",
-    "estimate": " (the limit is an estimate, not a datasheet's: a warning, not a failure)",
-}
-SOFT_LIMIT_FIX = ("record the part's {what} from its datasheet (pinlib parts record) to "
-                  "make this check a firm one")
+#: message where it would fail, by that value's basis (``what``: the value to record).
+SOFT_LIMIT_NOTE = {"generic": M.SOFT_LIMIT_GENERIC, "estimate": M.SOFT_LIMIT_ESTIMATE}
 
 
 def soft_basis(*values) -> str | None:
@@ -388,16 +383,15 @@ def soft_limit(check: Check, *values, what: str = "value") -> Check:
 def soften(check: Check, basis: str | None, *, what: str = "value") -> Check:
     """``check`` against a limit of soft ``basis`` (``"generic"``, ``"estimate"``; None:
     a firm limit, the check unchanged).  Its margin and numbers are unchanged;
-    ``details["limit_basis"]`` names the basis, and a failing check warns, says why and
-    how to make it firm (``what``: the value to record, e.g. ``"VIH"``)."""
+    ``details["limit_basis"]`` names the basis, and a failing check warns and says why
+    and what recording makes it firm (``what``: the value, e.g. ``"VIH"``); its fix, the
+    change to the design that would pass it, is the caller's."""
     if basis is None:
         return check
     check.details = {**check.details, "limit_basis": basis}
     if check.status == "fail":
         check.status = "warn"
-        check.message += SOFT_LIMIT_NOTE[basis]
-        firm = SOFT_LIMIT_FIX.format(what=what)
-        check.fix = firm if not check.fix else f"{check.fix}; or {firm}"
+        check.message += SOFT_LIMIT_NOTE[basis].format(what=what)
     return check
 
 

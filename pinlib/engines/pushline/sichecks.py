@@ -20,7 +20,7 @@ from pinlib.engines.pushline.rules import (
     UNDERSHOOT_DEFAULT,
     UNDERSHOOT_RULE,
 )
-from pinlib.model.result import Check, check_max, check_min, rule_of_thumb
+from pinlib.model.result import Check, check_max, check_min, rule_of_thumb, soft_limit
 from pinlib.physics.pullup.levels import held_low_level, loaded_level
 
 
@@ -123,12 +123,13 @@ def _swing_checks(p: Endpoint, table, warn: float) -> list[Check]:
         by_peak = f" while {mine[int(np.argmax(peaks[own]))]} drives"
         by_dip = f" while {mine[int(np.argmax(dips[own]))]} drives"
     return [
-        check_max(
+        soft_limit(check_max(
             "overshoot", over, allowed, "V", p.source("abs_max"),
             f"peak {_fmt(peak, 'V')} at {p.label}{by_peak} against its abs_max "
             f"{_fmt(abs_max, 'V')} at {_fmt(p.vdd, 'V')}: {_relative(above)} its "
             f"supply, {_fmt(allowed, 'V')} allowed{corner}", warn_margin=warn, subject=p.ref,
             fix=fix, details={"peak": peak, "abs_max": abs_max, "supply": p.vdd}),
+            p.pin.abs_max, what="abs_max"),
         # the part format records the upper rating only: the low limit is inferred
         rule_of_thumb(check_max(
             "undershoot", under, low_allowed, "V",
@@ -196,7 +197,7 @@ def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
                for kind, n in (("recrossings", e), ("full_reversals", o))}
     if hyst > 0:
         details["hysteresis"] = hyst
-    return Check(
+    chk = Check(
         "ringing", status, total, 0, "", None, source,
         (f"no re-crossing of {levels} at {rx.label}"
          if total == 0 else
@@ -207,6 +208,8 @@ def _ringing_check(rx: Endpoint, cases: dict, v_il: float, v_ih: float,
         details=details,
         fix=None if total == 0 else "add or increase a series resistor at the driver"
                                     + (f" ({whose})" if whose else ""))
+    # on a clock it fails against the receiver's thresholds: firm as they are
+    return soft_limit(chk, rx.pin.v_il, rx.pin.v_ih, what="VIL and VIH") if clock_line else chk
 
 
 def _driver_levels(d: Endpoint, c, rs: float,
@@ -329,18 +332,18 @@ def _level_checks(a: LineAnalysis, rx: Endpoint, d: Endpoint, c, load: tuple, v_
         else:
             low_fix = M.LEVEL_LOW_FIX.format(v_il=fmt_above(vil, "V"), v_ol=vol)
     return [
-        check_min(
+        soft_limit(check_min(
             "level-high", v_oh, v_ih, "V", rx.source("v_ih"),
             f"{d.label} VOH {_fmt(v_oh, 'V')}{oh_how} against {rx.label} VIH "
             f"{_fmt(v_ih, 'V')}",
             warn_margin=warn, subject=subject, fix=fix,
-            details={"driver": d.label, "driver_source": oh_src}),
-        check_max(
+            details={"driver": d.label, "driver_source": oh_src}), rx.pin.v_ih, what="VIH"),
+        soft_limit(check_max(
             "level-low", v_ol, v_il, "V", rx.source("v_il"),
             f"{d.label} VOL {_fmt(v_ol, 'V')}{ol_how} against {rx.label} VIL "
             f"{_fmt(v_il, 'V')}",
             warn_margin=warn, subject=subject, fix=low_fix,
-            details={"driver": d.label, "driver_source": ol_src}),
+            details={"driver": d.label, "driver_source": ol_src}), rx.pin.v_il, what="VIL"),
     ]
 
 
@@ -382,13 +385,14 @@ def _transition_check(rx: Endpoint, cases: dict, routed: bool, warn: float,
                else "a stronger driver or less load speeds the edge (a series resistor "
                     "slows it), or a receiver with a Schmitt-trigger input")
     many = len(cases) > 1
-    return check_max(
+    return soft_limit(check_max(
         "input-transition", edge, limit, "s", rx.source("t_transition_max"),
         f"slowest 10-90 % edge {_fmt(edge, 's')} at {rx.label}"
         + (f" while {by} drives" if many and by else "")
         + f" against its input transition time, at most {_fmt(limit, 's')}"
         + _corner(cases.values(), "slow"),
-        warn_margin=warn, subject=rx.ref, fix=fix)
+        warn_margin=warn, subject=rx.ref, fix=fix), rx.pin.t_transition_max,
+        what="t_transition_max")
 
 
 def _edge_check(cases: dict, clock: float, warn: float, rx: Endpoint | None = None) -> Check:

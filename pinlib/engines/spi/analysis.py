@@ -4,6 +4,7 @@
 from __future__ import annotations
 
 import math
+from dataclasses import field
 
 import numpy as np
 
@@ -31,6 +32,7 @@ from pinlib.engines.spi.modes import (
     spi_mode,
 )
 from pinlib.model.design import Bus, Design, Device
+from pinlib.model.result import soft_basis
 
 
 @value_class
@@ -59,6 +61,12 @@ class SpiAnalysis:
         Slowest far-end edge of each line, for the edge-time rule. [s]
     notes : list of str
         What was assumed or skipped. [1]
+    mode_limits : list of ModeLimit
+        The SPI modes each part states. [1]
+    soft_limits : dict
+        The soft basis (:func:`pinlib.model.result.soft_basis`) of a part's clock limit or
+        modes no datasheet or standard stands behind, by ``("f-max", ref)`` or
+        ``("spi-mode", ref)``: their checks warn where they would fail. [1]
     """
 
     bus: Bus
@@ -72,6 +80,7 @@ class SpiAnalysis:
     edge_terms: list
     notes: list
     mode_limits: list = ()
+    soft_limits: dict = field(default_factory=dict)
 
     def max_clock(self) -> float:
         """Highest clock at which every timing margin and every part's ``f_max`` hold:
@@ -184,6 +193,19 @@ def _sourced_text(device: Device, name: str) -> str:
     else:
         text = got.source or got.basis or got.provenance_text()
     return f"{origin} {name}: {text}"
+
+
+def _soft_values(device: Device) -> dict:
+    """The soft basis (:func:`pinlib.model.result.soft_basis`) of each of a device's
+    timing values that no datasheet or standard stands behind, by name."""
+    timing = device.part.timing
+    got = {n: soft_basis(getattr(timing, n, None)) for n in _TIMING_NAMES}
+    return {n: b for n, b in got.items() if b is not None}
+
+
+#: The timing values a budget term or clock limit takes from a part.
+_TIMING_NAMES = ("t_valid", "t_setup", "t_hold", "t_cs_setup", "t_cs_hold", "t_cs_valid",
+                 "f_max", "t_high", "t_low")
 
 
 def _timing_value(device: Device, name: str) -> float | None:
@@ -305,7 +327,8 @@ def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
                                _timing_value(controller, "t_hold"),
                                _timing_value(controller, "t_cs_setup"),
                                None if ct.f_max is None else float(ct.f_max.at()), c_sources,
-                               t_cs_lag=_timing_value(controller, "t_cs_hold"))
+                               t_cs_lag=_timing_value(controller, "t_cs_hold"),
+                               soft=_soft_values(controller))
     for name in ("t_valid", "t_setup", "t_hold"):
         if getattr(ct, name) is None:
             notes.append(f"{controller.ref} ({controller.part_id}) records no {name}: taken as 0")
@@ -347,7 +370,8 @@ def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
                                               "t_cs_hold", "t_cs_valid", "f_max", "t_high",
                                               "t_low")},
             t_cs_valid=t_cs_valid, t_cs_hold=_timing_value(p, "t_cs_hold"),
-            t_high=_timing_value(p, "t_high"), t_low=_timing_value(p, "t_low")))
+            t_high=_timing_value(p, "t_high"), t_low=_timing_value(p, "t_low"),
+            soft=_soft_values(p)))
     unpulsed = [p.ref for p in periph_t if p.t_high is None and p.t_low is None]
     if unpulsed:
         notes.append(f"SCLK high and low pulses not checked at {and_list(unpulsed)}: no "
@@ -359,6 +383,12 @@ def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
         if f is not None:
             f_limits.append((d.ref, f, _sourced_text(d, "f_max")))
     m_limits, silent = mode_limits([controller] + peripherals + bridges)
+    soft_limits = {}
+    for d in [controller] + peripherals + bridges:
+        for cid, value in (("f-max", d.part.timing.f_max), ("spi-mode", d.part.timing.spi_modes)):
+            basis = soft_basis(value)
+            if basis is not None:
+                soft_limits[(cid, d.ref)] = basis
     if silent:
         notes.append(f"SPI mode {mode.mode} not checked against {and_list(silent)}: "
                      "no SPI modes stated (timing.spi_modes)")
@@ -370,4 +400,4 @@ def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
             if edges:
                 edge_terms.append((sig, max(edges)))
     return SpiAnalysis(bus, mode, lines, ctl, periph_t, t_bridge, terms, f_limits,
-                       edge_terms, notes, m_limits)
+                       edge_terms, notes, m_limits, soft_limits)

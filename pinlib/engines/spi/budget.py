@@ -48,6 +48,9 @@ class PeripheralTiming:
         The peripheral's clock limit. [Hz]
     sources : dict
         Source text of each timing value, by name. [1]
+    soft : dict
+        The soft basis (:func:`pinlib.model.result.soft_basis`) of each timing value no
+        datasheet or standard stands behind, by name. [1]
     """
 
     ref: str
@@ -65,6 +68,7 @@ class PeripheralTiming:
     t_cs_hold: float | None = None
     t_high: float | None = None
     t_low: float | None = None
+    soft: dict = field(default_factory=dict)
 
 
 @value_class(frozen=True)
@@ -87,6 +91,8 @@ class ControllerTiming:
         Its SPI clock limit. [Hz]
     sources : dict
         Source text of each timing value, by name. [1]
+    soft : dict
+        As :attr:`PeripheralTiming.soft`. [1]
     """
 
     ref: str
@@ -97,6 +103,7 @@ class ControllerTiming:
     f_max: float | None = None
     sources: dict = field(default_factory=dict)
     t_cs_lag: float | None = None
+    soft: dict = field(default_factory=dict)
 
 
 @value_class(frozen=True)
@@ -127,6 +134,10 @@ class Term:
         or ``"t_cs_hold"`` (its CS lag, ``CS lag``); None where the time rests on no
         such assumption.  The check of a term assumed so warns where it would fail
         (:meth:`codes`). [1]
+    soft : str or None
+        The soft basis of the requirement (``"generic"``: a class's typical value;
+        ``"estimate"``), where no datasheet or standard stands behind it: its check warns
+        where it would fail (:func:`pinlib.model.result.soften`). [1]
     """
 
     id: str
@@ -138,6 +149,7 @@ class Term:
     parts: dict
     recorded: bool = True
     assumed: str | None = None
+    soft: str | None = None
 
     @property
     def margin_unit(self) -> str | None:
@@ -175,7 +187,8 @@ class Term:
         :func:`pinlib.model.result.status_codes` at ``warn_margin`` [1], a slack in
         seconds by :meth:`slack_codes`; at most a warning where the available time rests
         on an assumed CS lead or lag (:attr:`assumed`: a rule of thumb, as
-        :func:`pinlib.model.result.rule_of_thumb`).  The one rule of the engine's check
+        :func:`pinlib.model.result.rule_of_thumb`) or where the requirement is soft
+        (:attr:`soft`).  The one rule of the engine's check
         (:func:`pinlib.engines.spi.evaluate.term_check`) and the Monte Carlo
         tables. [1]"""
         from pinlib.model.result import status_codes
@@ -184,7 +197,7 @@ class Term:
             got = status_codes(margin, warn_margin)
         else:
             got = self.slack_codes(margin)
-        return np.minimum(got, 1 if self.assumed else 2).astype(np.int8)
+        return np.minimum(got, 1 if self.assumed or self.soft else 2).astype(np.int8)
 
     @property
     def check_source(self) -> str:
@@ -288,7 +301,8 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                     tid, p.ref, 0.5, p.sclk[end].early - p.sclk[start].late, float(need),
                     src.get(name, ""),
                     {"half_period": "T/2", f"sclk_{start}_late": p.sclk[start].late,
-                     f"sclk_{end}_early": p.sclk[end].early, name: float(need)}))
+                     f"sclk_{end}_early": p.sclk[end].early, name: float(need)},
+                    soft=p.soft.get(name)))
         if p.copi is not None:
             tv = _or0(controller.t_valid)
             terms.append(Term(
@@ -296,7 +310,7 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 _or0(p.t_setup), src.get("t_setup", ""),
                 {"half_period": "T/2", "sclk_early": s_sample.early, "t_valid_controller": tv,
                  "copi_late": p.copi.late, "t_setup": _or0(p.t_setup)},
-                p.t_setup is not None))
+                p.t_setup is not None, soft=p.soft.get("t_setup")))
             # hold: at the controller's slow and fast corners, the shorter (both
             # flights are its own, each from its reference at that corner)
             fc, fs = p.copi.at_fast(), s_sample.at_fast()
@@ -307,7 +321,7 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 "copi-hold", p.ref, 0.5, copi_early - sclk_late,
                 _or0(p.t_hold), src.get("t_hold", ""),
                 {"half_period": "T/2", "copi_early": copi_early, "sclk_late": sclk_late,
-                 "t_hold": _or0(p.t_hold)}, p.t_hold is not None))
+                 "t_hold": _or0(p.t_hold)}, p.t_hold is not None, soft=p.soft.get("t_hold")))
         if p.cipo is not None and p.t_valid is not None:
             terms.append(Term(
                 "cipo-setup", p.ref, 0.5, -(s_launch.late + p.t_valid + p.cipo.late + t_path),
@@ -315,7 +329,7 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 {"half_period": "T/2", "sclk_late": s_launch.late, "t_valid": p.t_valid,
                  "cipo_late": p.cipo.late, "bridges_round_trip": t_path,
                  "t_setup_controller": _or0(controller.t_setup)},
-                controller.t_setup is not None))
+                controller.t_setup is not None, soft=controller.soft.get("t_setup")))
         if p.cipo is not None:
             # SCLK is the controller's and CIPO the peripheral's: each at the corner of
             # its own driver that makes it earliest
@@ -325,7 +339,7 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 _or0(controller.t_hold), c_src.get("t_hold", ""),
                 {"half_period": "T/2", "sclk_early": sclk_early,
                  "cipo_early": cipo_early, "t_hold_controller": _or0(controller.t_hold)},
-                controller.t_hold is not None))
+                controller.t_hold is not None, soft=controller.soft.get("t_hold")))
         if p.cs is not None:
             # a controller that records no CS lead (lag) is taken to give half a period
             # (modes.CS_LEAD_SOURCE, CS_LAG_SOURCE): the checks that rest on it warn only
@@ -341,7 +355,7 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 _or0(p.t_cs_setup), src.get("t_cs_setup", ""),
                 {"lead": lead_text, "sclk_early": s_first.early, "cs_late": cs_on.late,
                  "t_cs_setup": _or0(p.t_cs_setup)}, p.t_cs_setup is not None,
-                lead_assumed))
+                lead_assumed, soft=p.soft.get("t_cs_setup")))
             if controller.t_cs_lag is None:
                 a_off, lag, lag_text, lag_assumed = 0.5, 0.0, "T/2", "t_cs_hold"
             else:
@@ -358,7 +372,8 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 "cs-hold", p.ref, a_off, lag + cs_early - sclk_late,
                 _or0(p.t_cs_hold), src.get("t_cs_hold", ""),
                 {"lag": lag_text, "sclk_late": sclk_late, "cs_early": cs_early,
-                 "t_cs_hold": _or0(p.t_cs_hold)}, p.t_cs_hold is not None, lag_assumed))
+                 "t_cs_hold": _or0(p.t_cs_hold)}, p.t_cs_hold is not None, lag_assumed,
+                soft=p.soft.get("t_cs_hold")))
             if mode.cpha == 0 and p.cipo is not None and p.t_cs_valid is not None:
                 # CPHA 0: the first bit is driven when CS asserts and sampled on the first
                 # edge, ``lead`` after CS leaves the controller; CS crosses each bridge
@@ -370,5 +385,6 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                     {"lead": lead_text, "cs_late": cs_on.late, "t_cs_valid": p.t_cs_valid,
                      "cipo_late": p.cipo.late, "bridges_round_trip": t_path,
                      "t_setup_controller": _or0(controller.t_setup)},
-                    controller.t_setup is not None, lead_assumed))
+                    controller.t_setup is not None, lead_assumed,
+                    soft=controller.soft.get("t_setup")))
     return terms

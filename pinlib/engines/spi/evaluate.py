@@ -31,6 +31,7 @@ from pinlib.model.result import (
     check_max,
     check_min,
     rule_of_thumb,
+    soften,
 )
 
 _TERM_TEXT = {
@@ -100,13 +101,16 @@ def evaluate_spi(bus: Bus, design: Design, *, analysis: SpiAnalysis | None = Non
     worst = {tid: None if math.isnan(m) else float(m)
              for tid, m in lowest_margins(sa.terms, clock).items()}
     for ref, f, source in sa.f_limits:
-        res.add(check_max("f-max", clock, f, "Hz", source,
-                          f"clock {_fmt(clock, 'Hz')} against {ref}'s f_max {_fmt(f, 'Hz')}",
-                          warn_margin=0.0, subject=ref,  # a rating: at it is inside
-                          fix=None if clock <= f else M.F_MAX_FIX.format(
-                              f_max=_fmt(f, "Hz"), clock=_fmt(clock, "Hz"), ref=ref)))
+        res.add(soften(check_max(
+            "f-max", clock, f, "Hz", source,
+            f"clock {_fmt(clock, 'Hz')} against {ref}'s f_max {_fmt(f, 'Hz')}",
+            warn_margin=0.0, subject=ref,  # a rating: at it is inside
+            fix=None if clock <= f else M.F_MAX_FIX.format(
+                f_max=_fmt(f, "Hz"), clock=_fmt(clock, "Hz"), ref=ref)),
+            sa.soft_limits.get(("f-max", ref)), what="f_max"))
     for chk in mode_checks(bus, sa.mode_limits):
-        res.add(chk)
+        res.add(soften(chk, sa.soft_limits.get(("spi-mode", chk.subject)),
+                       what="spi_modes"))
     for la in sa.lines.values():
         res.lines.append(la.result)
     (f_top, by, _), (f_edge, edge_sig) = sa.clock_limits()[0], sa.edge_rule_clock()
@@ -273,7 +277,14 @@ def term_check(t: Term, clock: float, warn: float, mode: int) -> Check:
         assumed_fix = M.CS_TIMING_ASSUMED_FIX.format(field=t.assumed,
                                                      what=CS_ASSUMED[t.assumed][0])
         chk.fix = assumed_fix if chk.fix is None else f"{chk.fix}; {assumed_fix}"
-    return chk
+    # a requirement no datasheet or standard stands behind: no failure either (Term.codes)
+    return soften(chk, t.soft, what=_SOFT_WHAT.get(t.id, "timing value"))
+
+
+#: The value a term's requirement is, for the fix of a soft one (:func:`soften`).
+_SOFT_WHAT = {"copi-setup": "t_setup", "copi-hold": "t_hold", "cipo-setup": "t_setup",
+              "cipo-hold": "t_hold", "cs-setup": "t_cs_setup", "cs-hold": "t_cs_hold",
+              "cipo-first-bit": "t_setup", "sclk-high": "t_high", "sclk-low": "t_low"}
 
 
 def _timing_fix(t: Term, avail: float, passing: float) -> str:
