@@ -75,7 +75,7 @@ def _restated(cls: str, pid: str, basis: str) -> str:
     """A team part ``pid`` extending ``cls`` that restates the values of :data:`_TIMING`
     and :data:`_PINS` with the class's own numbers, under ``basis``."""
     part = load_library(env=False).get(cls)
-    lines = [f'format = "pinlib.part/1"', f'id = "{pid}"',
+    lines = ['format = "pinlib.part/1"', f'id = "{pid}"',
              f'title = "{cls}, values restated (invented test data)"', f'extends = "{cls}"',
              f'provenance = {{ basis = "{basis}", source = "test data, invented" }}', "",
              "[timing]"]
