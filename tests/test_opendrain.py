@@ -1007,13 +1007,13 @@ def test_sources_name_the_file_a_value_came_from(tmp_path):
                                        more='clock = "1 MHz"'))
     speed = [c for c in res.checks if c.id == "device-speed"][0]
     assert speed.source == ("t-target-6ma timing.f_max from t-target (t-target.toml), "
-                            "estimate: test data, invented")
+                            "datasheet: test data, invented")
     u2 = design(tmp_path, one_bus(devices=devices)).buses[0].devices[1]
     own = value_source(u2, "pins.sda.i_ol", u2.part.pins["sda"].i_ol)
-    assert own == "t-target-6ma pins.sda.i_ol (t-target-6ma.toml), estimate: test data, invented"
+    assert own == "t-target-6ma pins.sda.i_ol (t-target-6ma.toml), datasheet: test data, invented"
     inherited = value_source(u2, "pins.sda.v_il", u2.part.pins["sda"].v_il)
     assert inherited == ("t-target-6ma pins.sda.v_il from t-target (t-target.toml), "
-                         "estimate: test data, invented")
+                         "datasheet: test data, invented")
 
 
 def test_window_without_rp_min_has_no_limit_but_a_reason(tmp_path):

@@ -65,7 +65,10 @@ def test_a_device_exactly_at_its_rated_clock_passes():
     assert fmax.value == 24e6 and fmax.limit == 24e6 and fmax.margin == 0
     assert fmax.status == "pass"
     over = check_design(_slow_edge(24.1e6)).bus("flash")
-    assert [c for c in over.checks if c.id == "f-max" and c.subject == "U1"][0].status == "fail"
+    above = [c for c in over.checks if c.id == "f-max" and c.subject == "U1"][0]
+    # beyond it: a warning, the rating being the class's typical value (no datasheet)
+    assert above.margin < 0 and above.status == "warn"
+    assert above.details["limit_basis"] == "generic"
 
 
 def test_supply_range_on_spi_and_gpio_buses():
@@ -142,8 +145,11 @@ def test_a_receiver_that_never_switches_has_no_number_and_says_why():
     # the 3.3 V flash's VOH (3.1 V) never reaches the 5 V controller's VIH (3.5 V)
     # (common practice, no source: class values of nor-flash-spi and mcu-5v)
     level = next(ln for ln in bus.lines if ln.signal == "cipo").check("level-high")
-    assert level.status == "fail" and level.value < level.limit
-    assert chk.status == "fail" and chk.value is None and chk.margin is None
+    # both warn where they would fail: the levels and mcu-5v's t_setup are typical of
+    # their classes
+    assert level.status == "warn" and level.value < level.limit
+    assert chk.status == "warn" and chk.value is None and chk.margin is None
+    assert level.details["limit_basis"] == chk.details["limit_basis"] == "generic"
     assert "never crosses" in chk.reason
     js = chk.to_json()
     assert js["value"] is None and js["margin"] is None and js["reason"] == chk.reason

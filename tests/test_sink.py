@@ -116,7 +116,8 @@ def test_open_drain_reset_against_a_strong_pullup(tmp_path):
     # (less the pins' leakage through the pull-up, a few mV, on the high level it falls
     # from)
     assert low.value == pytest.approx(VDD - 1e-3 * 990.0, abs=0.01)
-    assert low.status == "fail"
+    # against mcu-3v3's VIL, typical of its class: a warning where it would fail
+    assert low.margin < 0 and low.status == "warn"
     _, (ok,) = _sink(_bus(tmp_path, devs, TRACE + ', pullup = "10 kΩ"', library=False))
     assert ok.status == "pass"
 

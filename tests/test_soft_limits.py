@@ -156,7 +156,11 @@ def test_the_exit_status_follows(tmp_path, monkeypatch, capsys):
     _checks(tmp_path, None)
     assert main(["check", str(tmp_path / "d.toml")]) == 0
     out = capsys.readouterr().out
-    assert "FAIL" not in out and "not its datasheet's" in " ".join(out.split())
+    flat = " ".join(out.split())
+    assert "FAIL" not in out and "not its datasheet's" in flat   # spi-mode's message
+    # a check beyond a class's limit says beside the limit why it only warns
+    assert "WARN s U2: Clock ≤ f(max) 120 MHz, limit ≤ 104 MHz (typical of its class)," in flat
+    assert "Edge time" in flat and "(a rule of thumb), margin -" in flat
     assert max(len(line) for line in out.splitlines()) <= 80
     _checks(tmp_path, "datasheet")
     assert main(["check", str(tmp_path / "d.toml")]) == 1

@@ -784,7 +784,11 @@ def test_spi_max_clock_and_what_limits_it(budget):
     timing = [c for _, _, c in budget.bus_result.all_checks() if c.id != "f-max"]
     assert all(c.status != "fail" for c in timing)
     budget.set(clock=f_max * 1.05)
-    assert any(c.status == "fail" for _, _, c in budget.bus_result.all_checks())
+    # beyond it a check is beyond its limit (a warning where the limit is a class's
+    # typical value, as the demo's are)
+    beyond = [c for _, _, c in budget.bus_result.all_checks()
+              if c.margin is not None and c.margin < 0]
+    assert beyond and all(c.status != "pass" for c in beyond)
     budget.set(clock=10e6)
 
 
@@ -792,9 +796,11 @@ def test_spi_budget_shows_a_mode_the_display_does_not_take(budget):
     # the built-in display class states modes 0 and 3 (common practice, no source)
     budget.set(clock=10e6, spi_mode=1)
     mode = {c.subject: c for c in budget.bus_result.checks if c.id == "spi-mode"}
-    assert mode["U12"].status == "fail" and mode["U1"].status == "pass"
+    # the class's modes: a warning, not a failure (no datasheet stands behind them)
+    assert mode["U12"].status == "warn" and mode["U1"].status == "pass"
+    assert mode["U12"].details["limit_basis"] == "generic"
     assert "SPI mode 1 is not one of U12" in budget.checks_html.value
-    assert "FAIL" in budget.status_html.value.upper()
+    assert "WARN" in budget.status_html.value.upper()
     # the row shows the mode against the part's modes, and a note under the mode says it
     assert ">mode 1<" in budget.checks_html.value and ">modes 0, 3<" in budget.checks_html.value
     assert "SPI mode 1 is not one of U12" in budget.mode_note.value

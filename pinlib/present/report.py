@@ -71,6 +71,7 @@ def _against(c: Check) -> str:
     if not isinstance(c.limit, bool) and c.limit is not None:
         rel = _relation(c)
         text += f", limit {rel + ' ' if rel else ''}{format_value(c.limit, c.unit)}"
+        text += _soft_tag(c)
     margin = margin_text(c)
     if margin:
         text += f", margin {margin}"
@@ -80,6 +81,25 @@ def _against(c: Check) -> str:
         # gate drive's 1 V rule of thumb), which the status line's percent does not say
         text += f" (warns below {format_value(below, c.margin_unit)})"
     return text
+
+
+#: Beside a limit that a check beyond it only warns against: no datasheet stands behind
+#: it (:func:`pinlib.model.result.soften`, by its basis), or it is a rule of thumb
+#: (:func:`pinlib.model.result.rule_of_thumb`).
+SOFT_TAGS = {"generic": " (typical of its class)", "estimate": " (an estimate)",
+             "rule": " (a rule of thumb)"}
+
+
+def _soft_tag(c: Check) -> str:
+    """Why a check beyond its limit warns and does not fail: its limit is a class's
+    typical value, an estimate or a rule of thumb; else nothing."""
+    details = c.details if isinstance(c.details, dict) else {}
+    beyond = c.margin is None or (isinstance(c.margin, (int, float)) and c.margin < 0)
+    if c.status != "warn" or not beyond:
+        return ""
+    if details.get("rule_of_thumb"):
+        return SOFT_TAGS["rule"]
+    return SOFT_TAGS.get(details.get("limit_basis"), "")
 
 
 def problem_line(bus: BusResult, where: str | None, signal: str | None, c: Check) -> str:

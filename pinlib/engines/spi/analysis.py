@@ -197,9 +197,14 @@ def _sourced_text(device: Device, name: str) -> str:
 
 def _soft_values(device: Device) -> dict:
     """The soft basis (:func:`pinlib.model.result.soft_basis`) of each of a device's
-    timing values that no datasheet or standard stands behind, by name."""
+    timing values that no datasheet or standard stands behind, by name, and of its SPI
+    inputs' thresholds (``"levels"``)."""
     timing = device.part.timing
     got = {n: soft_basis(getattr(timing, n, None)) for n in _TIMING_NAMES}
+    # and its SPI inputs' thresholds, which a signal that never switches fails on
+    got["levels"] = soft_basis(*(getattr(pin, n) for pin in device.part.pins.values()
+                                 if (pin.function or "").startswith("spi-")
+                                 and pin.drive == "input" for n in ("v_ih", "v_il")))
     return {n: b for n, b in got.items() if b is not None}
 
 

@@ -138,6 +138,10 @@ class Term:
         The soft basis of the requirement (``"generic"``: a class's typical value;
         ``"estimate"``), where no datasheet or standard stands behind it: its check warns
         where it would fail (:func:`pinlib.model.result.soften`). [1]
+    levels_soft : str or None
+        The same of the input thresholds its signals switch at, where a signal that never
+        crosses one leaves no time at all (its check fails on those thresholds, not on
+        the requirement). [1]
     """
 
     id: str
@@ -150,6 +154,7 @@ class Term:
     recorded: bool = True
     assumed: str | None = None
     soft: str | None = None
+    levels_soft: str | None = None
 
     @property
     def margin_unit(self) -> str | None:
@@ -188,7 +193,9 @@ class Term:
         seconds by :meth:`slack_codes`; at most a warning where the available time rests
         on an assumed CS lead or lag (:attr:`assumed`: a rule of thumb, as
         :func:`pinlib.model.result.rule_of_thumb`) or where the requirement is soft
-        (:attr:`soft`).  The one rule of the engine's check
+        (:attr:`soft`); where no time is available at all (no finite margin), at most
+        a warning only where the thresholds are soft (:attr:`levels_soft`).  The one
+        rule of the engine's check
         (:func:`pinlib.engines.spi.evaluate.term_check`) and the Monte Carlo
         tables. [1]"""
         from pinlib.model.result import status_codes
@@ -197,7 +204,13 @@ class Term:
             got = status_codes(margin, warn_margin)
         else:
             got = self.slack_codes(margin)
-        return np.minimum(got, 1 if self.assumed or self.soft else 2).astype(np.int8)
+        cap = 1 if self.assumed or self.soft else 2
+        never_cap = 1 if self.levels_soft else 2
+        if never_cap != cap:
+            # no time at all (a signal never switches, no margin): that fails on the
+            # thresholds, however much time was assumed or required
+            cap = np.where(np.isfinite(np.asarray(margin, dtype=float)), cap, never_cap)
+        return np.minimum(got, cap).astype(np.int8)
 
     @property
     def check_source(self) -> str:
@@ -227,6 +240,12 @@ class Term:
         never = sorted({k.split("_")[0].upper() for k, v in self.parts.items()
                         if isinstance(v, float) and not math.isfinite(v)})
         return " and ".join(never) or "a signal"
+
+
+def softer(a: str | None, b: str | None) -> str | None:
+    """The softer of two soft bases (:func:`pinlib.model.result.soft_basis`): a class's
+    typical value before an estimate, either before none."""
+    return "generic" if "generic" in (a, b) else (a or b)
 
 
 def _or0(x):
@@ -284,6 +303,10 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
     c_src = controller.sources
     t_path = 2.0 * t_bridge  # a CIPO bit's round trip crosses every bridge twice
     for p in peripherals:
+        # the thresholds its inputs (and, for CIPO, the controller's) switch at: where a
+        # signal never crosses one, that is what its term fails on
+        lv_p = p.soft.get("levels")
+        lv_c = softer(lv_p, controller.soft.get("levels"))
         s_sample = p.sclk[mode.sample_edge]
         s_launch = p.sclk[mode.launch_edge]
         s_first = p.sclk[mode.first_edge]
@@ -302,7 +325,7 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                     src.get(name, ""),
                     {"half_period": "T/2", f"sclk_{start}_late": p.sclk[start].late,
                      f"sclk_{end}_early": p.sclk[end].early, name: float(need)},
-                    soft=p.soft.get(name)))
+                    soft=p.soft.get(name), levels_soft=lv_p))
         if p.copi is not None:
             tv = _or0(controller.t_valid)
             terms.append(Term(
@@ -310,7 +333,7 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 _or0(p.t_setup), src.get("t_setup", ""),
                 {"half_period": "T/2", "sclk_early": s_sample.early, "t_valid_controller": tv,
                  "copi_late": p.copi.late, "t_setup": _or0(p.t_setup)},
-                p.t_setup is not None, soft=p.soft.get("t_setup")))
+                p.t_setup is not None, soft=p.soft.get("t_setup"), levels_soft=lv_p))
             # hold: at the controller's slow and fast corners, the shorter (both
             # flights are its own, each from its reference at that corner)
             fc, fs = p.copi.at_fast(), s_sample.at_fast()
@@ -321,7 +344,8 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 "copi-hold", p.ref, 0.5, copi_early - sclk_late,
                 _or0(p.t_hold), src.get("t_hold", ""),
                 {"half_period": "T/2", "copi_early": copi_early, "sclk_late": sclk_late,
-                 "t_hold": _or0(p.t_hold)}, p.t_hold is not None, soft=p.soft.get("t_hold")))
+                 "t_hold": _or0(p.t_hold)}, p.t_hold is not None, soft=p.soft.get("t_hold"),
+                levels_soft=lv_p))
         if p.cipo is not None and p.t_valid is not None:
             terms.append(Term(
                 "cipo-setup", p.ref, 0.5, -(s_launch.late + p.t_valid + p.cipo.late + t_path),
@@ -329,7 +353,8 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 {"half_period": "T/2", "sclk_late": s_launch.late, "t_valid": p.t_valid,
                  "cipo_late": p.cipo.late, "bridges_round_trip": t_path,
                  "t_setup_controller": _or0(controller.t_setup)},
-                controller.t_setup is not None, soft=controller.soft.get("t_setup")))
+                controller.t_setup is not None, soft=controller.soft.get("t_setup"),
+                levels_soft=lv_c))
         if p.cipo is not None:
             # SCLK is the controller's and CIPO the peripheral's: each at the corner of
             # its own driver that makes it earliest
@@ -339,7 +364,8 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 _or0(controller.t_hold), c_src.get("t_hold", ""),
                 {"half_period": "T/2", "sclk_early": sclk_early,
                  "cipo_early": cipo_early, "t_hold_controller": _or0(controller.t_hold)},
-                controller.t_hold is not None, soft=controller.soft.get("t_hold")))
+                controller.t_hold is not None, soft=controller.soft.get("t_hold"),
+                levels_soft=lv_c))
         if p.cs is not None:
             # a controller that records no CS lead (lag) is taken to give half a period
             # (modes.CS_LEAD_SOURCE, CS_LAG_SOURCE): the checks that rest on it warn only
@@ -355,7 +381,7 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 _or0(p.t_cs_setup), src.get("t_cs_setup", ""),
                 {"lead": lead_text, "sclk_early": s_first.early, "cs_late": cs_on.late,
                  "t_cs_setup": _or0(p.t_cs_setup)}, p.t_cs_setup is not None,
-                lead_assumed, soft=p.soft.get("t_cs_setup")))
+                lead_assumed, soft=p.soft.get("t_cs_setup"), levels_soft=lv_p))
             if controller.t_cs_lag is None:
                 a_off, lag, lag_text, lag_assumed = 0.5, 0.0, "T/2", "t_cs_hold"
             else:
@@ -373,7 +399,7 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 _or0(p.t_cs_hold), src.get("t_cs_hold", ""),
                 {"lag": lag_text, "sclk_late": sclk_late, "cs_early": cs_early,
                  "t_cs_hold": _or0(p.t_cs_hold)}, p.t_cs_hold is not None, lag_assumed,
-                soft=p.soft.get("t_cs_hold")))
+                soft=p.soft.get("t_cs_hold"), levels_soft=lv_p))
             if mode.cpha == 0 and p.cipo is not None and p.t_cs_valid is not None:
                 # CPHA 0: the first bit is driven when CS asserts and sampled on the first
                 # edge, ``lead`` after CS leaves the controller; CS crosses each bridge
@@ -386,5 +412,5 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                      "cipo_late": p.cipo.late, "bridges_round_trip": t_path,
                      "t_setup_controller": _or0(controller.t_setup)},
                     controller.t_setup is not None, lead_assumed,
-                    soft=controller.soft.get("t_setup")))
+                    soft=controller.soft.get("t_setup"), levels_soft=lv_c))
     return terms

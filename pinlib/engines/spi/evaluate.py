@@ -243,11 +243,13 @@ def term_check(t: Term, clock: float, warn: float, mode: int) -> Check:
         reason = (f"{t.never_switching()} never crosses the receiving input's threshold "
                   "(VIH on a rise, VIL on a fall), so no time is available: see the line's "
                   "level checks")
-        return Check(t.id, "fail", None, t.required, "s", None, source,
-                     head + reason + f"; {_fmt(t.required, 's')} required",
-                     subject=t.subject, details=details, reason=reason,
-                     fix="make the driver's high level reach the receiver's VIH (a "
-                         "level translator, or parts on one rail)")
+        # it fails on the receiving inputs' thresholds, as the lines' level checks do
+        return soften(Check(t.id, "fail", None, t.required, "s", None, source,
+                            head + reason + f"; {_fmt(t.required, 's')} required",
+                            subject=t.subject, details=details, reason=reason,
+                            fix="make the driver's high level reach the receiver's VIH (a "
+                                "level translator, or parts on one rail)"),
+                      t.levels_soft, what="VIH and VIL")
     message = (head + body.format(avail=_fmt(avail, "s"), req=_fmt(t.required, "s"))
                + f" at {_fmt(clock, 'Hz')}")
     if t.margin_unit is None:
