@@ -388,12 +388,15 @@ def _show_data(lib, pid) -> dict:
             continue
         origin = item.origin or pid
         # the loader fills a basis or source the value does not state from the file that
-        # set it (the class it was inherited from, not this part)
+        # set it (the class it was inherited from, not this part): the basis it rests on
+        # is its own, else that file's (the format's default, generic, when the file's
+        # provenance names none), never the basis of the part shown (Sourced.rests_on;
+        # a value the loader never stamped is the part's own)
         entry = {
             "field": dotted(path),
             "text": item.text or str(item.value),
             "unit": item.unit,
-            "basis": item.basis or _file_basis(lib, origin) or part.provenance.basis,
+            "basis": item.rests_on or part.provenance.basis,
             "basis_from_part": item.basis is None or "basis" in item.file_filled,
             "source": item.source,
             "typ": None if item.typ is None else (
@@ -430,12 +433,6 @@ def _show_data(lib, pid) -> dict:
         "attributes": attributes,
         "values": values,
     }
-
-
-def _file_basis(lib, pid) -> str | None:
-    """The basis of a part file's own ``provenance`` table (None when it has none)."""
-    prov = lib.files[pid].raw.get("provenance") if pid in lib.files else None
-    return prov.get("basis") if isinstance(prov, dict) else None
 
 
 def _typ_text(entry) -> str:
