@@ -1101,6 +1101,7 @@ def test_a_long_unknown_key_in_a_value_table_is_cut_as_values_are(tmp_path, caps
     assert "(300 characters)" in out and "x" * 100 not in out
     assert all(len(ln) <= 80 for ln in out.splitlines()), out
 
+
 def test_show_gives_a_value_the_basis_of_the_file_that_set_it(lib, capsys):
     # a value with a source of its own and no basis rests on its file's basis: the format's
     # default (generic) for a class file whose provenance names no basis, not the basis of
@@ -1149,3 +1150,39 @@ def test_show_gives_a_value_the_basis_of_the_file_that_set_it(lib, capsys):
     assert "generic (part)" in rows["pins.sda.leakage"], out
     assert "published" in rows["pins.sda.v_ih"] and "(part)" not in rows["pins.sda.v_ih"], out
 
+
+def test_record_a_standard_s_limit_with_the_basis_published(lib, capsys):
+    _, team = lib
+    run(capsys, "parts", "new", "eeprom-b", "--from", "base", "--into", "team")
+    code, out, _ = run(capsys, "parts", "record", "eeprom-b", "sda.v_ih", "0.7 VDD",
+                       "--basis", "published", "--source",
+                       "I2C-bus specification UM10204 rev. 6, table 9, VIH min",
+                       "--library", "team")
+    assert code == 0 and "(published: I2C-bus specification UM10204" in " ".join(out.split())
+    data = tomllib.loads((team / "eeprom-b.toml").read_text(encoding="utf-8"))
+    # published: UM10204 rev. 6, table 9, VIH min 0.7·VDD
+    assert data["pins"]["sda"]["v_ih"] == {
+        "value": "0.7 VDD", "basis": "published",
+        "source": "I2C-bus specification UM10204 rev. 6, table 9, VIH min"}
+    code, out, _ = run(capsys, "parts", "show", "eeprom-b", "--library", "team", "--json")
+    values = {v["field"]: v for v in json.loads(out)["values"]}
+    assert (values["pins.sda.v_ih"]["basis"], values["pins.sda.v_ih"]["basis_from_part"]) == (
+        "published", False)
+    with pytest.raises(SystemExit) as info:
+        main(["parts", "record", "eeprom-b", "sda.v_il", "0.3 VDD", "--basis", "rumour",
+              "--source", "x", "--library", "team"])
+    err = capsys.readouterr().err
+    assert info.value.code == 2 and "invalid choice: 'rumour'" in err and "'published'" in err
+
+
+def test_check_lists_a_published_basis_that_names_no_standard(lib, capsys):
+    _, team = lib
+    (team / "eeprom.toml").write_text(EEPROM + textwrap.dedent("""\
+        v_ih = { value = "0.7 VDD", basis = "published" }
+        v_il = { value = "0.3 VDD", basis = "published", source = "UM10204 rev. 6, table 9" }
+        """), encoding="utf-8")
+    code, out, _ = run(capsys, "parts", "check", "--library", "team", "--json")
+    problems = json.loads(out)["problems"]
+    assert code == 1
+    assert [(p["line"], p["field"]) for p in problems] == [(11, "pins.sda.v_ih")]
+    assert "basis 'published' but no source" in problems[0]["message"]

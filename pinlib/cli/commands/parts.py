@@ -76,6 +76,8 @@ examples:
       --source "lab, 3 samples"
   pinlib parts record eeprom-acme sda.v_ol "0.4 V" --typ "0.15 V" \\
       --source "rev C, table 7.5"
+  pinlib parts record eeprom-acme sda.v_ih "0.7 VDD" --basis published \\
+      --source "I2C-bus specification UM10204 rev. 6, table 9, VIH min"
 
 FIELD is PIN.FIELD (sda.c_in), timing.FIELD, supply.min|max, sides.a.PIN.FIELD...
 A bridging part (translator, repeater) has its pins per side: sides.a.sda.c_in.
@@ -114,6 +116,8 @@ files (for example a '#:schema ./part.schema.json' first line, where supported).
 
 
 def add_parser(subparsers) -> None:
+    from pinlib.library.record import RECORD_BASES
+
     common = argparse.ArgumentParser(add_help=False)
     common.add_argument("--library", metavar="DIR", action="append", default=[],
                         help="a team library folder (repeatable; after PINLIB_LIBRARY)")
@@ -156,8 +160,9 @@ def add_parser(subparsers) -> None:
     p.add_argument("field", metavar="FIELD", help="PIN.FIELD, timing.FIELD, supply.min ...")
     p.add_argument("value", metavar="VALUE", help="the value with its unit, e.g. '6 pF'")
     p.add_argument("--source", required=True, help="document, revision, table or page")
-    p.add_argument("--basis", choices=["datasheet", "measured", "estimate"],
-                   default="datasheet", help="how the value was obtained (default: datasheet)")
+    p.add_argument("--basis", choices=list(RECORD_BASES), default="datasheet",
+                   help="how the value was obtained (default: datasheet; published: a "
+                        "standard's limit for every part of its kind)")
     p.add_argument("--typ", help="a typical value to keep beside the limit")
 
     p = action("import", "list an IBIS file, or write a team part from one of its components",
