@@ -1100,3 +1100,89 @@ def test_a_long_unknown_key_in_a_value_table_is_cut_as_values_are(tmp_path, caps
     assert code == 1
     assert "(300 characters)" in out and "x" * 100 not in out
     assert all(len(ln) <= 80 for ln in out.splitlines()), out
+
+
+def test_show_gives_a_value_the_basis_of_the_file_that_set_it(lib, capsys):
+    # a value with a source of its own and no basis rests on its file's basis: the format's
+    # default (generic) for a class file whose provenance names no basis, not the basis of
+    # the part shown (datasheet); one that states a basis keeps it
+    _, team = lib
+    (team / "team-class.toml").write_text(textwrap.dedent("""\
+        format = "pinlib.part/1"
+        id = "team-class"
+        title = "A team class (invented)"
+        category = "sensor"
+        extends = "base"
+        provenance = { source = "our notes (invented)" }
+
+        [pins.sda]
+        leakage = { value = "2 µA", source = "bench notes (invented)" }
+        v_ih = { value = "0.7 VDD", basis = "published", source = "UM10204 rev. 6, table 9" }
+        """), encoding="utf-8")
+    (team / "team-part.toml").write_text(textwrap.dedent("""\
+        format = "pinlib.part/1"
+        id = "team-part"
+        title = "A team part (invented)"
+        category = "sensor"
+        extends = "team-class"
+        provenance = { basis = "datasheet", source = "rev A (invented)" }
+
+        [pins.sda]
+        c_in = { value = "6 pF", source = "rev A, table 2 (invented)" }
+        """), encoding="utf-8")
+    code, out, _ = run(capsys, "parts", "show", "team-part", "--library", "team", "--json")
+    assert code == 0
+    values = {v["field"]: v for v in json.loads(out)["values"]}
+    leakage = values["pins.sda.leakage"]
+    assert (leakage["basis"], leakage["basis_from_part"], leakage["origin"]) == (
+        "generic", True, "team-class")
+    v_ih = values["pins.sda.v_ih"]
+    assert (v_ih["basis"], v_ih["basis_from_part"]) == ("published", False)
+    c_in = values["pins.sda.c_in"]  # its own file's basis
+    assert (c_in["basis"], c_in["basis_from_part"]) == ("datasheet", True)
+    scl = values["pins.scl.c_in"]  # states nothing: its file's basis and source
+    assert (scl["basis"], scl["source"], scl["origin"]) == ("generic", "common practice", "base")
+    lib_values = loader.load_library(["team"], env=False).get("team-part").pins["sda"]
+    assert lib_values.leakage.rests_on == "generic" and lib_values.leakage.soft
+    assert lib_values.v_ih.rests_on == "published" and not lib_values.v_ih.soft
+    code, out, _ = run(capsys, "parts", "show", "team-part", "--library", "team")
+    rows = {ln.split()[0]: ln for ln in out.splitlines() if ln.startswith("pins.sda.")}
+    assert "generic (part)" in rows["pins.sda.leakage"], out
+    assert "published" in rows["pins.sda.v_ih"] and "(part)" not in rows["pins.sda.v_ih"], out
+
+
+def test_record_a_standard_s_limit_with_the_basis_published(lib, capsys):
+    _, team = lib
+    run(capsys, "parts", "new", "eeprom-b", "--from", "base", "--into", "team")
+    code, out, _ = run(capsys, "parts", "record", "eeprom-b", "sda.v_ih", "0.7 VDD",
+                       "--basis", "published", "--source",
+                       "I2C-bus specification UM10204 rev. 6, table 9, VIH min",
+                       "--library", "team")
+    assert code == 0 and "(published: I2C-bus specification UM10204" in " ".join(out.split())
+    data = tomllib.loads((team / "eeprom-b.toml").read_text(encoding="utf-8"))
+    # published: UM10204 rev. 6, table 9, VIH min 0.7·VDD
+    assert data["pins"]["sda"]["v_ih"] == {
+        "value": "0.7 VDD", "basis": "published",
+        "source": "I2C-bus specification UM10204 rev. 6, table 9, VIH min"}
+    code, out, _ = run(capsys, "parts", "show", "eeprom-b", "--library", "team", "--json")
+    values = {v["field"]: v for v in json.loads(out)["values"]}
+    assert (values["pins.sda.v_ih"]["basis"], values["pins.sda.v_ih"]["basis_from_part"]) == (
+        "published", False)
+    with pytest.raises(SystemExit) as info:
+        main(["parts", "record", "eeprom-b", "sda.v_il", "0.3 VDD", "--basis", "rumour",
+              "--source", "x", "--library", "team"])
+    err = capsys.readouterr().err
+    assert info.value.code == 2 and "invalid choice: 'rumour'" in err and "'published'" in err
+
+
+def test_check_lists_a_published_basis_that_names_no_standard(lib, capsys):
+    _, team = lib
+    (team / "eeprom.toml").write_text(EEPROM + textwrap.dedent("""\
+        v_ih = { value = "0.7 VDD", basis = "published" }
+        v_il = { value = "0.3 VDD", basis = "published", source = "UM10204 rev. 6, table 9" }
+        """), encoding="utf-8")
+    code, out, _ = run(capsys, "parts", "check", "--library", "team", "--json")
+    problems = json.loads(out)["problems"]
+    assert code == 1
+    assert [(p["line"], p["field"]) for p in problems] == [(11, "pins.sda.v_ih")]
+    assert "basis 'published' but no source" in problems[0]["message"]

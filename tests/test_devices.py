@@ -465,10 +465,9 @@ def test_i2c_sink_meets_vol1_or_vol2(lib):
             assert sda.i_ol.value >= 2e-3, pid
 
 
-# published: SMBus specification 3.1, table 4 (high-power DC), as product datasheets
-# quote it (the table itself not read here, docs/references.md [C2]): VIL 0.8 V max,
-# VIH 1.35 V min, ILEAK-PIN 10 µA, CPIN 10 pF; from memory (docs/references.md [M]):
-# VOL 0.4 V at 4 mA (100 kHz class).
+# published: SMBus specification 3.1, table 4 (high-power DC), [C] since 5 December
+# 2026 (docs/references.md): VIL 0.8 V max, VIH 1.35 V min, ILEAK-PIN 10 µA, CPIN 10 pF
+# (recommended), VOL 0.4 V at 4 mA (100 kHz class).
 SMBUS31_TABLE4 = {"v_il": 0.8, "v_ih": 1.35, "v_ol": 0.4, "i_ol": 4e-3,
                   "leakage": 10e-6, "c_in": 10e-12}
 
@@ -577,3 +576,93 @@ def test_a_voltage_supervisor_class_with_an_open_drain_reset(lib):
     assert reset.abs_max.at(part.supply.min.value) >= 5.0
     mr = part.pins["mr"]
     assert (mr.function, mr.drive) == ("gpio", "input") and mr.abs_max is not None
+
+
+# ---------------------------------------------------------------------------
+# Values whose basis is "published"
+# ---------------------------------------------------------------------------
+
+_UM = "I2C-bus specification UM10204 rev. 6, "
+_SMB = "SMBus specification 3.1, "
+#: Each source a built-in value with the basis "published" may quote, and the standard's
+#: number for it: a level as (scale, offset) of scale·VDD + offset, else SI units.
+PUBLISHED_LIMITS = {
+    _UM + "table 9, Ci max": 10e-12,  # published: UM10204 rev. 6, table 9 [C]
+    _UM + "table 9, Ii max": 10e-6,  # published: UM10204 rev. 6, table 9 [C]
+    _UM + "table 9, VIL max": (0.3, 0.0),  # published: UM10204 rev. 6, table 9 [C]
+    _UM + "table 9, VIH min": (0.7, 0.0),  # published: UM10204 rev. 6, table 9 [C]
+    _UM + "table 9, VOL2 (VDD <= 2 V)": (0.2, 0.0),  # published: UM10204 rev. 6, table 9 [C]
+    _UM + "table 9, VOL2 at 2 mA": 2e-3,  # published: UM10204 rev. 6, table 9 [C]
+    # published: UM10204 rev. 6, table 9 [C]
+    _UM + "table 9, Fast-mode Plus IOL min at VOL 0.4 V": 20e-3,
+    _UM + "table 9, Fast-mode Plus tof max": 120e-9,  # published: UM10204 rev. 6, table 9 [C]
+    # published: UM10204 rev. 6, table 10 [C]
+    _UM + "table 10, Standard-mode fSCL max": 100e3,
+    _UM + "table 10, Standard-mode tVD;DAT max": 3.45e-6,
+    _UM + "table 10, Standard-mode tVD;ACK max": 3.45e-6,
+    _UM + "table 10, Fast-mode Plus fSCL max": 1e6,
+    _UM + "table 10, Fast-mode Plus tVD;DAT max": 0.45e-6,
+    _UM + "table 10, Fast-mode Plus tVD;ACK max": 0.45e-6,
+    # published: SMBus specification 3.1, table 4 (high-power DC) [C]
+    _SMB + "table 4, ILEAK-PIN": 10e-6,
+    _SMB + "table 4, VIL max": (0.0, 0.8),
+    _SMB + "table 4, VIH min": (0.0, 1.35),
+    _SMB + "table 4, VHYS": (0.0, 0.08),
+    _SMB + "table 4, VOL max (100 kHz class)": (0.0, 0.4),
+    _SMB + "table 4, pull-down current at VOL (100 kHz class)": 4e-3,
+    # published: SMBus specification 3.1, table 2 (AC) [C]
+    _SMB + "table 2, fSMB max (100 kHz class)": 100e3,
+}
+
+#: Values that quote one of those sources but keep the generic basis: SMBALERT# is not
+#: an SMBCLK/SMBDAT pin, and the reference collection does not say that table 4 covers it.
+QUOTES_A_LIMIT_BUT_GENERIC = {
+    ("fan-controller-smbus", "pins.alert.leakage"),
+    ("fan-controller-smbus", "pins.alert.v_ol"),
+    ("fan-controller-smbus", "pins.alert.i_ol"),
+}
+
+
+def _own_values(lib):
+    """(part id, dotted path, value) of every value a built-in file writes itself."""
+    for pid, part in lib.parts.items():
+        for path, v in _values(part):
+            if v.origin == pid:
+                yield pid, ".".join(map(str, path)), v
+
+
+def test_every_published_value_quotes_its_standard_and_equals_its_number(lib):
+    from pinlib.core.quantity import Threshold
+
+    published = [(pid, path, v) for pid, path, v in _own_values(lib)
+                 if v.basis == "published"]
+    assert len(published) >= 40
+    for pid, path, v in published:
+        where = f"{pid}: {path}"
+        assert re.search(r"UM10204|SMBus specification", v.source or ""), where
+        assert v.source in PUBLISHED_LIMITS, f"{where}: {v.source!r} is not a table entry"
+        expected = PUBLISHED_LIMITS[v.source]
+        if isinstance(v.value, Threshold):
+            assert (v.value.scale, v.value.offset) == pytest.approx(expected, abs=1e-12), where
+        else:
+            assert v.value == pytest.approx(expected, rel=1e-12), where
+        assert not v.soft and v.rests_on == "published", where
+
+
+def test_a_value_quoting_a_standard_s_limit_is_published_unless_listed(lib):
+    # a class that quotes a table entry and keeps the generic basis is a choice to name
+    quoting = {(pid, path): v for pid, path, v in _own_values(lib)
+               if v.source in PUBLISHED_LIMITS}
+    generic = {key for key, v in quoting.items() if v.basis != "published"}
+    assert generic == QUOTES_A_LIMIT_BUT_GENERIC
+
+
+def test_a_standard_s_limits_reach_the_classes_that_inherit_them(lib):
+    eeprom = lib.get("eeprom-i2c").pins["sda"]
+    assert eeprom.v_ih.rests_on == "published" and eeprom.v_ih.origin == "i2c-peripheral"
+    # the class's own choices stay generic: its Fast-mode timing, its rating
+    peripheral = lib.get("i2c-peripheral")
+    assert peripheral.timing.f_max.soft and peripheral.pins["sda"].abs_max.soft
+    # from memory, unconfirmed (the JEDEC levels): generic
+    assert lib.get("fpga-io-3v3").pins["sda"].v_ih.rests_on == "generic"
+    assert lib.get("io-expander-legacy-5v").pins["sda"].v_il.rests_on == "generic"

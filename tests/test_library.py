@@ -969,3 +969,67 @@ def test_a_missing_builtin_folder_is_named_with_the_setting_that_chose_it(
         loader.load_library(env=False)
     assert info.value.file == str(missing)
     assert "PINLIB_BUILTIN" in info.value.hint
+
+
+# --- the basis "published" ---------------------------------------------------------------
+
+PUBLISHED_CHILD = """
+    provenance = { basis = "published", source = "I2C-bus specification UM10204 rev. 6" }
+
+    [pins.sda]
+    # published: UM10204 rev. 6, table 9, VIH min 0.7·VDD
+    v_ih = { value = "0.7 VDD", basis = "published", source = "UM10204 rev. 6, table 9, VIH min" }
+    c_in = "10 pF"   # published: UM10204 rev. 6, table 9, Ci max (the file's basis and source)
+    leakage = { value = "1 µA", basis = "datasheet", source = "rev A (invented)" }
+    """
+
+
+def test_published_is_a_basis_of_a_value_table_and_of_a_file_s_provenance(builtin, tmp_path):
+    team = tmp_path / "team"
+    write(team, "x.toml", part("x", "base", PUBLISHED_CHILD))
+    lib = load_library([team])
+    assert [str(p) for p in lib.problems] == []
+    p = lib.parts["x"]
+    assert (p.provenance.basis, p.provenance.source) == (
+        "published", "I2C-bus specification UM10204 rev. 6")
+    sda = p.pins["sda"]
+    assert (sda.v_ih.basis, sda.v_ih.rests_on, sda.v_ih.soft) == ("published", "published", False)
+    assert (sda.c_in.basis, sda.c_in.file_filled) == ("published", ("basis", "source"))
+    assert sda.leakage.rests_on == "datasheet"
+    # what the class sets stays the class's: generic, a limit that warns only
+    assert p.pins["scl"].c_in.rests_on == "generic" and p.pins["scl"].c_in.soft
+
+
+def test_the_json_schema_offers_published_for_values_and_provenance(builtin):
+    jsonschema = pytest.importorskip("jsonschema")
+    from pinlib.core.tomlfile import tomllib
+
+    schema = part_json_schema()
+    pin = schema["$defs"]["Pin"]["properties"]
+    table = schema["$defs"][pin["c_in"]["$ref"].split("/")[-1]]["anyOf"][1]
+    assert "published" in table["properties"]["basis"]["enum"]
+    assert "derived" not in table["properties"]["basis"]["enum"]  # pinlib's own
+    assert "published" in schema["$defs"]["Provenance"]["properties"]["basis"]["enum"]
+    validator = jsonschema.Draft202012Validator(schema)
+    assert not list(validator.iter_errors(tomllib.loads(part("x", "base", PUBLISHED_CHILD))))
+
+
+@pytest.mark.parametrize("where, text, field", [
+    ("value", '[pins.sda]\nc_in = { value = "8 pF", basis = "standard" }\n', "pins.sda.c_in"),
+    ("provenance", 'provenance = { basis = "standard", source = "UM10204" }\n',
+     "provenance.basis"),
+])
+def test_an_unknown_basis_is_refused_naming_the_bases_a_file_may_give(builtin, tmp_path,
+                                                                       where, text, field):
+    team = tmp_path / "team"
+    path = write(team, "x.toml", part("x", "base", text))
+    lib = load_library([team])
+    assert "x" not in lib.parts
+    (err,) = lib.problems
+    assert (err.file, err.field, err.value) == (str(path), field, "standard")
+    assert err.line == line_of_text(path, '"standard"')
+    for basis in ("generic", "datasheet", "measured", "estimate", "ibis", "published"):
+        assert basis in err.expected, (where, err.expected)
+    assert "derived" not in err.expected  # set by pinlib itself, never by a file
+    assert ("unknown basis" if where == "value" else "not one of the allowed values") \
+        in err.message

@@ -356,8 +356,34 @@ def test_a_source_and_a_known_basis_are_required(lib_dirs):
     lib = load(team)
     with pytest.raises(InputError, match="source"):
         record_value(lib, "child", "sda.c_in", "8 pF", "  ")
-    with pytest.raises(InputError, match="basis"):
+    with pytest.raises(InputError, match="basis") as err:
         record_value(lib, "child", "sda.c_in", "8 pF", "rev C", basis="hearsay")
+    assert err.value.problem == "unknown basis" and err.value.value == "hearsay"
+    assert err.value.expected == ("one of datasheet, measured, estimate, published, generic")
+
+
+def test_a_standard_s_limit_is_recorded_with_the_basis_published(lib_dirs):
+    # a team part whose datasheet states no VIH of its own but compliance with the I2C
+    # specification: the standard's limit, with the standard as its source
+    _, team = lib_dirs
+    path = team / "child.toml"
+    record_value(load(team), "child", "sda.v_ih", "0.7 VDD",
+                 "I2C-bus specification UM10204 rev. 6, table 9, VIH min", basis="published")
+    assert ('v_ih = { value = "0.7 VDD", basis = "published", source = "I2C-bus '
+            'specification UM10204 rev. 6, table 9, VIH min" }') in path.read_text(
+        encoding="utf-8")
+    v_ih = load(team).parts["child"].pins["sda"].v_ih
+    # published: UM10204 rev. 6, table 9, VIH min 0.7·VDD
+    assert (v_ih.value.scale, v_ih.basis, v_ih.soft) == (0.7, "published", False)
+
+
+def test_a_new_part_with_a_published_basis_and_no_source_asks_for_the_standard(lib_dirs):
+    _, team = lib_dirs
+    path = new_part(load(team), "child-std", "base", team, basis="published")
+    text = path.read_text(encoding="utf-8")
+    assert 'provenance = { basis = "published", recorded = ' in text
+    assert '#   source = "I2C-bus specification UM10204 rev. 6"' in text
+    assert load(team).parts["child-std"].provenance.basis == "published"
 
 
 def test_value_that_breaks_a_child_part_is_refused(lib_dirs):

@@ -834,6 +834,23 @@ def test_recorder_new_part_and_value(tmp_path):
     assert c_in.typ == pytest.approx(9e-12, rel=1e-12)
 
 
+def test_recorder_offers_and_records_a_standard_s_limit(tmp_path):
+    # the panel's bases are the command's (RECORD_BASES); a new part may also be generic
+    team = tmp_path / "team"
+    r = PartRecorder(team)
+    assert list(r.basis.options) == ["datasheet", "measured", "estimate", "published"]
+    assert list(r.new_basis.options) == ["datasheet", "measured", "estimate", "published",
+                                         "generic"]
+    r.set(id="eeprom-std", extends="eeprom-i2c", new_source="Acme rev A (invented)")
+    path = r.create()
+    r.set(part="eeprom-std", field="sda.v_il", value="0.3 VDD", basis="published",
+          source="I2C-bus specification UM10204 rev. 6, table 9, VIL max")
+    assert r.record() == path and r.errors == {}
+    v_il = load_library([team]).get("eeprom-std").pins["sda"].v_il
+    # published: UM10204 rev. 6, table 9, VIL max 0.3·VDD
+    assert (v_il.value.scale, v_il.basis, v_il.soft) == (0.3, "published", False)
+
+
 def test_recorder_writes_a_typ_beyond_its_limit_and_shows_the_warning(tmp_path):
     """A typ on the wrong side of its limit (a datasheet's typ at other conditions, or a
     slip) is written, and the panel says so: it was refused, then written silently."""

@@ -38,9 +38,10 @@ from pinlib.library.sources import NEEDS_SOURCE
 
 __all__ = ["RECORD_BASES", "field_example", "new_part", "record_value", "resolve_field"]
 
-#: The bases a recorded value may carry ("generic" is for the built-in classes,
-#: "derived" is set by pinlib itself).
-RECORD_BASES = ("datasheet", "measured", "estimate")
+#: The bases a recorded value may carry ("published": the limit a published standard
+#: sets for every part of its kind, for a part whose datasheet states no number of its
+#: own; "generic" is for the built-in classes, "derived" is set by pinlib itself).
+RECORD_BASES = ("datasheet", "measured", "estimate", "published")
 
 _ID = re.compile(r"^[a-z0-9][a-z0-9-]*$")
 
@@ -254,8 +255,10 @@ def _provenance_lines(basis: str, source: str, today: _dt.date) -> list[str]:
     line = "provenance = { " + ", ".join(bits) + " }"
     if source or basis not in NEEDS_SOURCE:
         return [line]
+    example = ("I2C-bus specification UM10204 rev. 6" if basis == "published"
+               else "datasheet rev C, 2024-03")
     return ["# Name the document this part's values come from: add to provenance",
-            '#   source = "datasheet rev C, 2024-03"  (pinlib parts check asks until then)',
+            f'#   source = "{example}"  (pinlib parts check asks until then)',
             line]
 
 
@@ -496,7 +499,7 @@ def record_value(library: loader.Library, part_id: str, field: str, value_text: 
     source : str
         Where the value comes from: document, revision, table or page.
     basis : str
-        ``datasheet``, ``measured`` or ``estimate``.
+        ``datasheet``, ``measured``, ``estimate`` or ``published`` (:data:`RECORD_BASES`).
     typ : str, optional
         A typical value to keep beside the limit.
 

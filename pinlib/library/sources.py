@@ -1,7 +1,8 @@
 """Values that claim a document or a measurement but do not name it.
 
-A ``datasheet`` or ``measured`` basis says where a value comes from only together with
-its source (the document, revision and table, or the bench and the samples).  A part
+A ``datasheet``, ``measured`` or ``published`` basis says where a value comes from only
+together with its source (the document, revision and table, the bench and the samples,
+or the standard and its table).  A part
 file whose ``provenance`` states such a basis with no source, or a value table that
 states one with no source of its own, is listed by ``pinlib parts check`` with the other
 problems of the file (file, line, field), as implausible values are.
@@ -18,8 +19,8 @@ from pinlib.core.errors import LibraryError
 
 __all__ = ["NEEDS_SOURCE", "unsourced"]
 
-#: The bases that name a document or a measurement, and so need a source.
-NEEDS_SOURCE = ("datasheet", "measured")
+#: The bases that name a document, a measurement or a standard, and so need a source.
+NEEDS_SOURCE = ("datasheet", "measured", "published")
 
 
 def _blank(text) -> bool:

@@ -312,7 +312,7 @@ def _warn_implausible(design) -> None:
     for pid in ids:
         for w in part_warnings(lib.get(pid), lib):
             _warn(f"pinlib: warning: {pid}: " + w.message)
-        # a datasheet or measured basis that names no source, in the part's files
+        # a datasheet, measured or published basis that names no source, in the part's files
         for cls in lib.chain(pid):
             pf = lib.files.get(cls)
             if pf is not None and pf.path not in files:

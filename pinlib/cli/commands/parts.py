@@ -76,6 +76,8 @@ examples:
       --source "lab, 3 samples"
   pinlib parts record eeprom-acme sda.v_ol "0.4 V" --typ "0.15 V" \\
       --source "rev C, table 7.5"
+  pinlib parts record eeprom-acme sda.v_ih "0.7 VDD" --basis published \\
+      --source "I2C-bus specification UM10204 rev. 6, table 9, VIH min"
 
 FIELD is PIN.FIELD (sda.c_in), timing.FIELD, supply.min|max, sides.a.PIN.FIELD...
 A bridging part (translator, repeater) has its pins per side: sides.a.sda.c_in.
@@ -114,6 +116,8 @@ files (for example a '#:schema ./part.schema.json' first line, where supported).
 
 
 def add_parser(subparsers) -> None:
+    from pinlib.library.record import RECORD_BASES
+
     common = argparse.ArgumentParser(add_help=False)
     common.add_argument("--library", metavar="DIR", action="append", default=[],
                         help="a team library folder (repeatable; after PINLIB_LIBRARY)")
@@ -156,8 +160,9 @@ def add_parser(subparsers) -> None:
     p.add_argument("field", metavar="FIELD", help="PIN.FIELD, timing.FIELD, supply.min ...")
     p.add_argument("value", metavar="VALUE", help="the value with its unit, e.g. '6 pF'")
     p.add_argument("--source", required=True, help="document, revision, table or page")
-    p.add_argument("--basis", choices=["datasheet", "measured", "estimate"],
-                   default="datasheet", help="how the value was obtained (default: datasheet)")
+    p.add_argument("--basis", choices=list(RECORD_BASES), default="datasheet",
+                   help="how the value was obtained (default: datasheet; published: a "
+                        "standard's limit for every part of its kind)")
     p.add_argument("--typ", help="a typical value to keep beside the limit")
 
     p = action("import", "list an IBIS file, or write a team part from one of its components",
@@ -388,12 +393,15 @@ def _show_data(lib, pid) -> dict:
             continue
         origin = item.origin or pid
         # the loader fills a basis or source the value does not state from the file that
-        # set it (the class it was inherited from, not this part)
+        # set it (the class it was inherited from, not this part): the basis it rests on
+        # is its own, else that file's (the format's default, generic, when the file's
+        # provenance names none), never the basis of the part shown (Sourced.rests_on;
+        # a value the loader never stamped is the part's own)
         entry = {
             "field": dotted(path),
             "text": item.text or str(item.value),
             "unit": item.unit,
-            "basis": item.basis or _file_basis(lib, origin) or part.provenance.basis,
+            "basis": item.rests_on or part.provenance.basis,
             "basis_from_part": item.basis is None or "basis" in item.file_filled,
             "source": item.source,
             "typ": None if item.typ is None else (
@@ -430,12 +438,6 @@ def _show_data(lib, pid) -> dict:
         "attributes": attributes,
         "values": values,
     }
-
-
-def _file_basis(lib, pid) -> str | None:
-    """The basis of a part file's own ``provenance`` table (None when it has none)."""
-    prov = lib.files[pid].raw.get("provenance") if pid in lib.files else None
-    return prov.get("basis") if isinstance(prov, dict) else None
 
 
 def _typ_text(entry) -> str:

@@ -85,7 +85,7 @@ def run_check(args, load) -> int:
         warned = [w for pid in lib.parts for w in pin_set_warnings(lib.parts[pid],
                                                                    lib.files[pid])]
         warned += override_warnings(lib)
-        for pf in lib.files.values():  # a datasheet or measured basis without its source
+        for pf in lib.files.values():  # a datasheet, measured or published basis without its source
             problems += unsourced(pf)
         scope = "the library"
         root = None
