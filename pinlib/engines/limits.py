@@ -172,17 +172,18 @@ class OpenDrainLimits:
     # ------------------------------------------------------------------ defaults for pins
 
     def default_levels(self) -> tuple[Sourced, Sourced]:
-        """(VIL, VIH) a receiver without its own thresholds is taken at."""
+        """(VIL, VIH) a receiver without its own thresholds is taken at: the standard's
+        (basis ``published``, as the sink points of :meth:`default_sink`)."""
         if self._smbus is None:
             m = self._i2c
             return (Sourced(Threshold(m.v_il_rel, 0.0, f"{m.v_il_rel:g} VDD"), "V",
-                            basis="generic", source=self.source_levels),
+                            basis="published", source=self.source_levels),
                     Sourced(Threshold(m.v_ih_rel, 0.0, f"{m.v_ih_rel:g} VDD"), "V",
-                            basis="generic", source=self.source_levels))
+                            basis="published", source=self.source_levels))
         c = self._smbus
-        return (Sourced(Threshold(0.0, c.v_il_max, f"{c.v_il_max:g} V"), "V", basis="generic",
+        return (Sourced(Threshold(0.0, c.v_il_max, f"{c.v_il_max:g} V"), "V", basis="published",
                         source=self.source_levels),
-                Sourced(Threshold(0.0, c.v_ih_min, f"{c.v_ih_min:g} V"), "V", basis="generic",
+                Sourced(Threshold(0.0, c.v_ih_min, f"{c.v_ih_min:g} V"), "V", basis="published",
                         source=self.source_levels))
 
     def states_sink(self, vdd: float, vtol: float = 0.0) -> bool:
@@ -202,21 +203,24 @@ class OpenDrainLimits:
         for both corners (above 2 V it asks more than VOL1 would, never less)."""
         if self._smbus is not None:
             c = self._smbus
-            return (Sourced(Threshold(0.0, c.v_ol, f"{c.v_ol:g} V"), "V", basis="generic",
+            return (Sourced(Threshold(0.0, c.v_ol, f"{c.v_ol:g} V"), "V", basis="published",
                             source=self.source_sink),
-                    Sourced(c.i_ol, "A", basis="generic", source=self.source_sink),
+                    Sourced(c.i_ol, "A", basis="published", source=self.source_sink),
                     f"VOL {c.v_ol:g} V at {c.i_ol * 1e3:g} mA")
         m = self._i2c
         if vdd * (1.0 - vtol) <= i2c_std.VDD_LOW_SINK and m.v_ol_low_vdd_rel is not None:
             return (Sourced(Threshold(m.v_ol_low_vdd_rel, 0.0, f"{m.v_ol_low_vdd_rel:g} VDD"),
-                            "V", basis="generic", source=self.source_sink),
-                    Sourced(m.i_ol_low_vdd, "A", basis="generic", source=self.source_sink),
+                            "V", basis="published", source=self.source_sink),
+                    Sourced(m.i_ol_low_vdd, "A", basis="published", source=self.source_sink),
                     f"VOL2 {m.v_ol_low_vdd_rel:g}·VDD at {m.i_ol_low_vdd * 1e3:g} mA"
                     + ("" if vdd <= i2c_std.VDD_LOW_SINK else
                        f", the rail reaching {i2c_std.VDD_LOW_SINK:g} V at its minimum"))
-        return (Sourced(Threshold(0.0, m.v_ol, f"{m.v_ol:g} V"), "V", basis="generic",
+        # the standard's point, except where it gives none (Standard-mode at 2 V and
+        # below): VOL1 is then an estimate (states_sink)
+        basis = "published" if self.states_sink(vdd, vtol) else "estimate"
+        return (Sourced(Threshold(0.0, m.v_ol, f"{m.v_ol:g} V"), "V", basis=basis,
                         source=self.source_sink),
-                Sourced(m.i_ol, "A", basis="generic", source=self.source_sink),
+                Sourced(m.i_ol, "A", basis=basis, source=self.source_sink),
                 f"VOL1 {m.v_ol:g} V at {m.i_ol * 1e3:g} mA")
 
     # ------------------------------------------------------------------ neighbours
