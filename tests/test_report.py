@@ -247,10 +247,11 @@ def test_a_check_without_a_value_gives_its_reason_on_its_line(monkeypatch, capsy
     # a 3.3 V flash answering a 5 V controller: CIPO never reaches VIH, so the CIPO
     # setup time does not exist (test data, invented; see tests/test_pp_limits.py)
     monkeypatch.setenv("COLUMNS", "200")
-    assert main(["check", str(ROOT / "tests" / "data" / "spi-cipo-never-high.toml")]) == 1
+    # (a warning: the thresholds it never crosses are typical of their class)
+    assert main(["check", str(ROOT / "tests" / "data" / "spi-cipo-never-high.toml")]) == 0
     out = capsys.readouterr().out
     line = next(ln for ln in out.splitlines() if ": CIPO setup: " in ln)
-    assert line.startswith("FAIL flash U2") and "never crosses" in line and "fix: " in line
+    assert line.startswith("WARN flash U2") and "never crosses" in line and "fix: " in line
     assert "max clock — (not computed" in out
     assert not re.search(r"\bnan\b|\binf\b|∞", out, re.IGNORECASE)
 

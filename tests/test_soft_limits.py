@@ -162,8 +162,16 @@ def test_the_exit_status_follows(tmp_path, monkeypatch, capsys):
     assert "WARN s U2: Clock ≤ f(max) 120 MHz, limit ≤ 104 MHz (typical of its class)," in flat
     assert "Edge time" in flat and "(a rule of thumb), margin -" in flat
     assert max(len(line) for line in out.splitlines()) <= 80
+    # the closing line counts the warnings that would fail against a datasheet's limit
+    # (not those resting on a rule of thumb too: an assumed CS lead still warns)
+    soft = sum(1 for c in _checks(tmp_path, None).values() if c.status == "warn"
+               and "limit_basis" in c.details and not c.details.get("rule_of_thumb")
+               and (c.margin is None or c.margin < 0))
+    assert soft >= len(SOFT)
+    assert f"warn ({soft} beyond a limit no datasheet states), 0 fail on 2 buses" in flat
     _checks(tmp_path, "datasheet")
     assert main(["check", str(tmp_path / "d.toml")]) == 1
+    assert "beyond a limit no datasheet states" not in capsys.readouterr().out
 
 
 def test_the_monte_carlo_tables_agree_with_the_engine(tmp_path):

@@ -24,6 +24,7 @@ from pinlib.present.values import (
     counts,
     figure_cells,
     flight_rows,
+    soft_words,
     with_fix,
 )
 
@@ -159,8 +160,9 @@ def detail_lines(result, cols: int) -> list[str]:
     out += wrap(f"design: {result.design}" + (f" ({result.path})" if result.path else ""),
                 cols)
     n = counts(result)
-    out += wrap(f"status: {status_word(result.status)} — {n['pass']} pass, {n['warn']} warn, "
-                f"{n['fail']} fail (warn below {format_si(result.warn_margin, '%')} margin; "
+    out += wrap(f"status: {status_word(result.status)} — {n['pass']} pass, {n['warn']} warn"
+                f"{soft_words(n)}, {n['fail']} fail (warn below "
+                f"{format_si(result.warn_margin, '%')} margin; "
                 f"{M.RATING_NO_WARN_BAND})", cols)
     for note in result.notes:
         out += wrap(f"note: {note}", cols)

@@ -36,6 +36,8 @@ from pinlib.present.values import (
     counts,
     format_value,
     search_bound_words,
+    soft_words,
+    warns_beyond,
     with_fix,
 )
 from pinlib.present.visible import visible
@@ -66,7 +68,9 @@ def _relation(c: Check) -> str:
 def _against(c: Check) -> str:
     """The value against its limit: ``"242 ns, limit ≤ 300 ns, margin +19 %"``."""
     if isinstance(c.value, bool) or c.value is None:
-        return c.reason or c.message
+        # a message says itself why it only warns; a reason does not
+        why = warns_beyond(c)
+        return (c.reason + (REASON_TAGS[why] if why else "")) if c.reason else c.message
     text = format_value(c.value, c.unit)
     if not isinstance(c.limit, bool) and c.limit is not None:
         rel = _relation(c)
@@ -90,16 +94,16 @@ SOFT_TAGS = {"generic": " (typical of its class)", "estimate": " (an estimate)",
              "rule": " (a rule of thumb)"}
 
 
+#: The same after a check's reason, where it has no value and limit to stand beside.
+REASON_TAGS = {"generic": "; a warning, the limit being typical of its class",
+               "estimate": "; a warning, the limit being an estimate",
+               "rule": "; a warning, the limit being a rule of thumb"}
+
+
 def _soft_tag(c: Check) -> str:
     """Why a check beyond its limit warns and does not fail: its limit is a class's
     typical value, an estimate or a rule of thumb; else nothing."""
-    details = c.details if isinstance(c.details, dict) else {}
-    beyond = c.margin is None or (isinstance(c.margin, (int, float)) and c.margin < 0)
-    if c.status != "warn" or not beyond:
-        return ""
-    if details.get("rule_of_thumb"):
-        return SOFT_TAGS["rule"]
-    return SOFT_TAGS.get(details.get("limit_basis"), "")
+    return SOFT_TAGS.get(warns_beyond(c) or "", "")
 
 
 def problem_line(bus: BusResult, where: str | None, signal: str | None, c: Check) -> str:
@@ -327,8 +331,9 @@ def _problems(result: DesignResult) -> list[tuple[BusResult, str | None, str | N
 def _closing(result: DesignResult) -> str:
     n = counts(result)
     buses = len(result.buses)
-    text = (f"{status_word(result.status)} {result.design}: {n['pass']} pass, {n['warn']} warn, "
-            f"{n['fail']} fail on {buses} bus{'es' if buses != 1 else ''}")
+    text = (f"{status_word(result.status)} {result.design}: {n['pass']} pass, "
+            f"{n['warn']} warn{soft_words(n)}, {n['fail']} fail on {buses} "
+            f"bus{'es' if buses != 1 else ''}")
     pairs = len(result.couplings)
     if pairs:
         text += f" and {pairs} coupling{plural_s(pairs)}"

@@ -151,12 +151,36 @@ def with_fix(text: str, c: Check) -> str:
 
 
 def counts(result: DesignResult) -> dict[str, int]:
-    """Checks by status over the whole design: {"pass": n, "warn": n, "fail": n}."""
-    out = {s: 0 for s in ("pass", "warn", "fail")}
+    """Checks by status over the whole design: {"pass": n, "warn": n, "fail": n}, and
+    ``"soft"``: the warnings beyond a limit that no datasheet states (a class's typical
+    value, an estimate: :func:`warns_beyond`), which would fail against a datasheet's."""
+    out = {s: 0 for s in ("pass", "warn", "fail", "soft")}
     for b in result.results():
         for _, _, c in b.all_checks():
             out[c.status] = out.get(c.status, 0) + 1
+            if warns_beyond(c) in ("generic", "estimate"):
+                out["soft"] += 1
     return out
+
+
+def soft_words(n: dict) -> str:
+    """After a count of warnings (of :func:`counts`): how many are beyond a limit no
+    datasheet states (``" (3 beyond a limit no datasheet states)"``), else nothing."""
+    soft = n.get("soft", 0)
+    return f" ({soft} beyond a limit no datasheet states)" if soft else ""
+
+
+def warns_beyond(c) -> str | None:
+    """Why a check beyond its limit (a negative margin, or a yes/no check's warning)
+    warns and does not fail: ``"rule"`` (a rule of thumb), or the basis of a limit no
+    datasheet states (``"generic"``, ``"estimate"``); None for any other check."""
+    details = c.details if isinstance(c.details, dict) else {}
+    beyond = c.margin is None or (isinstance(c.margin, (int, float)) and c.margin < 0)
+    if c.status != "warn" or not beyond:
+        return None
+    if details.get("rule_of_thumb"):
+        return "rule"
+    return details.get("limit_basis")
 
 
 #: An SPI peripheral's flights as its budget checks' ``details`` hold them (see

@@ -35,7 +35,7 @@ from pinlib.present.review.text import (
     _no_snapshot_text,
     _route_of,
 )
-from pinlib.present.values import FLIGHT_HEAD, figure_cells, flight_rows
+from pinlib.present.values import FLIGHT_HEAD, figure_cells, flight_rows, soft_words
 
 _CSS = """\
 :root{--ink:#111;--muted:#4a4a4a;--rule:#c8c8c8;--head:#eef0f2}
@@ -131,7 +131,8 @@ class _Html:
             self.w(f'<p class="meta">{_e(desc)}</p>')
         self.w(f'<p class="meta">Overall: {_badge(res.status)} the design '
                f"{_e(_STATUS_WORD[res.status])} — {counts['pass']} checks pass, "
-               f"{counts['warn']} warn, {counts['fail']} fail (warning below "
+               f"{counts['warn']} warn{_e(soft_words(counts))}, {counts['fail']} fail "
+               "(warning below "
                f"{format_si(res.warn_margin, '%')} margin; {_e(M.RATING_NO_WARN_BAND)}).</p>",
                "</header>")
         self.nav()

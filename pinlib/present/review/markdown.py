@@ -36,7 +36,7 @@ from pinlib.present.review.text import (
     _message,
     _route_of,
 )
-from pinlib.present.values import FLIGHT_HEAD, figure_cells, flight_rows
+from pinlib.present.values import FLIGHT_HEAD, figure_cells, flight_rows, soft_words
 
 # Every user-written text (titles, ids, descriptions, sources, part values, paths) goes
 # through _mt: one line (newlines and runs of spaces become one space), the characters
@@ -208,7 +208,8 @@ class _Markdown:
             self.w(*_wrapped(_mt(desc)), "")
         self.w(*_wrapped(
             f"**Overall: {_MARK[res.status]}** — the design {_STATUS_WORD[res.status]}: "
-            f"{counts['pass']} checks pass, {counts['warn']} warn, {counts['fail']} fail "
+            f"{counts['pass']} checks pass, {counts['warn']} warn{soft_words(counts)}, "
+            f"{counts['fail']} fail "
             f"(warning below {format_si(res.warn_margin, '%')} margin; "
             f"{M.RATING_NO_WARN_BAND})."), "")
         self.w("## Summary", "")
