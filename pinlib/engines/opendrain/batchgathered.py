@@ -20,6 +20,7 @@ from pinlib.engines.opendrain.batchinputs import (
     _Parts,
     _Receiver,
     _Tap,
+    soft_flags,
 )
 from pinlib.engines.opendrain.inputs import LineInputs
 from pinlib.engines.opendrain.rules import abs_max_follows, part_is_mosfet
@@ -38,7 +39,8 @@ def _pin(t, driver: bool, receiver: bool) -> PinData:
         abs_follows=abs_max_follows(pin) if pin.abs_max is not None else None,
         pullup=None, pullup_internal=None, off_tolerant=bool(pin.off_tolerant),
         t_of_min=float(pin.t_of_min.value) if pin.t_of_min is not None else None,
-        t_of_max=float(pin.t_of_max.value) if pin.t_of_max is not None else None)
+        t_of_max=float(pin.t_of_max.value) if pin.t_of_max is not None else None,
+        **soft_flags(pin))
 
 
 def line_from(li: LineInputs, seg: Segment, parts: _Parts, scen: Scenario) -> _Line:

@@ -97,6 +97,14 @@ class PinData:
     #: device on its own rail are taken at the pull-up rail (UM10204 rev. 6, table 11,
     #: note [1])
     spec_levels: tuple = (False, False)
+    #: whether the limits a check reads of the pin rest on a soft value (a class's
+    #: typical value, an estimate: :attr:`pinlib.library.values.Sourced.soft`): its
+    #: ``i_ol`` (sink-current), ``v_il`` and ``v_ih`` (v-ol, v-oh, bridge-offset) and
+    #: ``abs_max`` (input-voltage); False for the specification's own (published)
+    soft_i_ol: Any = False
+    soft_v_il: Any = False
+    soft_v_ih: Any = False
+    soft_abs_max: Any = False
 
 
 @value_class
@@ -109,6 +117,10 @@ class TimingData:
     t_low: Any | None      # [s]
     t_high: Any | None     # [s]
     supply: tuple | None   # (min, max) [V] of the device's side
+    #: whether f_max (device-speed) and the supply range's (min, max) (supply-range)
+    #: rest on a soft value (:attr:`pinlib.library.values.Sourced.soft`)
+    soft_f_max: Any = False
+    soft_supply: tuple = (False, False)
 
 
 def _pin_data(pin, name: str, part: Part, dev: Device, lim: OpenDrainLimits,
@@ -141,7 +153,20 @@ def _pin_data(pin, name: str, part: Part, dev: Device, lim: OpenDrainLimits,
         t_of_min=float(pin.t_of_min.value) if pin.t_of_min is not None else None,
         t_of_max=float(pin.t_of_max.value) if pin.t_of_max is not None else None,
         spec_levels=(pin.v_il is None, pin.v_ih is None),
+        **soft_flags(pin),
     )
+
+
+def soft_flags(pin) -> dict:
+    """The ``soft_*`` fields of :class:`PinData` for a part's pin: whether each limit
+    it states rests on a soft value (one it leaves to the specification does not). [1]"""
+    return {f"soft_{name}": _soft(getattr(pin, name))
+            for name in ("i_ol", "v_il", "v_ih", "abs_max")}
+
+
+def _soft(value) -> bool:
+    """:attr:`pinlib.library.values.Sourced.soft` of a value; False for none. [1]"""
+    return bool(value is not None and value.soft)
 
 
 def sda_valid_time(part: Part, lim: OpenDrainLimits) -> tuple[float, str]:
@@ -165,6 +190,8 @@ def _timing_data(part: Part, dev: Device, lim: OpenDrainLimits) -> TimingData:
         t_low=float(t.t_low.value) if t.t_low is not None else None,
         t_high=float(t.t_high.value) if t.t_high is not None else None,
         supply=(float(sup.min.value), float(sup.max.value)) if sup is not None else None,
+        soft_f_max=_soft(t.f_max),
+        soft_supply=(_soft(sup.min), _soft(sup.max)) if sup is not None else (False, False),
     )
 
 
