@@ -1,0 +1,218 @@
+"""A check against a part's value that no datasheet, measurement or published standard
+stands behind (a built-in class's typical value, basis ``generic``; an ``estimate``)
+warns where it would fail (pinlib.model.result.soft_limit): on the open-drain side
+(I2C/SMBus) and in the supply-range check of every engine, in the engine and in the
+array paths (candidate ranking, Monte Carlo, corners, the push-pull tables) alike.
+The same design with the part's value recorded from a datasheet still fails."""
+
+from __future__ import annotations
+
+import pytest
+from test_candidates import assert_same_ranking
+
+from pinlib.engines.dispatch import check_design, evaluate_bus
+from pinlib.model.design import load_design
+from pinlib.studies import candidates as cand
+from pinlib.studies import whatif
+
+HEAD = 'format = "pinlib.design/1"\ntitle = "soft limits (invented)"\n'
+
+
+def team_part(folder, id: str, extends: str, category: str, basis: str, body: str):
+    """A team part extending a built-in class, its own values of basis ``basis``
+    (invented test data)."""
+    folder.mkdir(exist_ok=True)
+    (folder / f"{id}.toml").write_text(f"""format = "pinlib.part/1"
+id = "{id}"
+title = "{id} (invented test part)"
+category = "{category}"
+extends = "{extends}"
+provenance = {{ basis = "{basis}", source = "invented test sheet" }}
+{body}""", encoding="utf-8")
+
+
+def i2c_design(tmp_path, part: str, *, mode="fast-plus", clock="500 kHz", supply="3.3 V"):
+    path = tmp_path / "d.toml"
+    path.write_text(HEAD + f"""
+[[bus]]
+id = "i2c"
+protocol = "i2c"
+mode = "{mode}"
+clock = "{clock}"
+supply = "{supply}"
+pullup = "auto"
+devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
+  {{ ref = "U2", part = "{part}" }},
+]
+""", encoding="utf-8")
+    return load_design(path, library_folders=_team(tmp_path))
+
+
+def _team(tmp_path) -> list:
+    team = tmp_path / "team"
+    return [team] if team.is_dir() else []
+
+
+def check_of(design, id: str, subject: str = "U2"):
+    res = evaluate_bus(design.buses[0], design)
+    return next(c for c in res.checks if c.id == id and c.subject == subject)
+
+
+F_MAX = '[timing]\nf_max = "400 kHz"\n'  # invented: the class's own number, recorded
+
+
+@pytest.mark.parametrize("basis, status", [(None, "warn"), ("datasheet", "fail"),
+                                           ("measured", "fail"), ("estimate", "warn")])
+def test_device_speed_against_a_class_value_warns_and_a_datasheet_value_fails(
+        tmp_path, basis, status):
+    # eeprom-i2c rates f_max 400 kHz "typical of the class (common practice)"; a 500 kHz
+    # clock is 25 % over it (derived: (400 kHz − 500 kHz) / 400 kHz = −0.25)
+    part = "eeprom-i2c"
+    if basis is not None:
+        part = f"eeprom-{basis}"
+        team_part(tmp_path / "team", part, "eeprom-i2c", "memory", basis, F_MAX)
+    chk = check_of(i2c_design(tmp_path, part), "device-speed")
+    assert chk.margin == pytest.approx(-0.25, rel=1e-12)
+    assert chk.status == status
+    if status == "warn":
+        assert chk.details["limit_basis"] == ("generic" if basis is None else basis)
+        assert "a warning, not a failure" in chk.message
+        assert "record the part's f_max from its datasheet (pinlib parts record)" in chk.fix
+    else:
+        assert "limit_basis" not in chk.details and "a warning" not in chk.message
+
+
+def test_a_soft_limit_that_holds_passes_and_names_its_basis(tmp_path):
+    # at 400 kHz the clock is at the class's f_max: a pass, its basis kept in details
+    chk = check_of(i2c_design(tmp_path, "eeprom-i2c", mode="fast", clock="400 kHz"),
+                   "device-speed")
+    assert chk.status == "pass" and chk.details["limit_basis"] == "generic"
+
+
+SUPPLY = 'supply = { min = "4.5 V", max = "5.5 V" }\n'  # invented: mcu-5v's class range
+
+
+@pytest.mark.parametrize("basis", [None, "datasheet"])
+def test_supply_range_on_an_i2c_bus(tmp_path, basis):
+    # mcu-5v's class range 4.5-5.5 V on a 3.3 V rail: (3.3 − 4.5) / 4.5 = −0.267
+    part = "mcu-5v"
+    if basis:
+        part = "mcu-5v-ds"
+        team_part(tmp_path / "team", part, "mcu-5v", "controller", basis, SUPPLY)
+    d = i2c_design(tmp_path, part, mode="fast", clock="400 kHz")
+    chk = check_of(d, "supply-range")
+    assert chk.margin == pytest.approx((3.3 - 4.5) / 4.5, rel=1e-9)
+    if basis:
+        assert chk.status == "fail" and "limit_basis" not in chk.details
+    else:
+        assert chk.status == "warn" and chk.details["limit_basis"] == "generic"
+        assert "give the device its own rail" in chk.fix and "supply range" in chk.fix
+
+
+def gpio_design(tmp_path, part: str, tol: str = "0 %"):
+    path = tmp_path / "g.toml"
+    path.write_text(HEAD + f"""
+[[bus]]
+id = "g"
+protocol = "gpio"
+supply = "3.3 V"
+supply_tolerance = "{tol}"
+devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller", pin = "gpio_out" }},
+  {{ ref = "U2", part = "{part}", pin = "gpio_in" }},
+]
+lines.g = {{ length = "5 cm", capacitance = "1 pF/cm", delay = "60 ps/cm" }}
+""", encoding="utf-8")
+    return load_design(path, library_folders=_team(tmp_path))
+
+
+@pytest.mark.parametrize("basis", [None, "datasheet"])
+def test_supply_range_on_a_push_pull_bus_and_its_corners(tmp_path, basis):
+    part = "mcu-5v"
+    if basis:
+        part = "mcu-5v-ds"
+        team_part(tmp_path / "team", part, "mcu-5v", "controller", basis, SUPPLY)
+    d = gpio_design(tmp_path, part, tol="5 %")
+    res = check_design(d).buses[0]
+    chk = next(c for c in res.checks if c.id == "supply-range" and c.subject == "U2")
+    assert chk.margin < 0
+    want = "fail" if basis else "warn"
+    assert chk.status == want
+    # the corners and Monte Carlo take the engine's rule at each board's rail
+    cr = whatif.corners(d)
+    (got,) = [c for c in cr.checks if c.name == "g supply-range U2"]
+    assert got.status == got.nominal_status == want
+    mc = whatif.monte_carlo(d, 64, seed=1)
+    (c,) = [c for c in mc.checks if c.name == "g supply-range U2"]
+    assert (c.fails, c.warns) == ((64, 0) if basis else (0, 64))
+
+
+@pytest.mark.parametrize("basis", [None, "datasheet"])
+def test_monte_carlo_and_corners_of_an_i2c_bus_agree_with_the_engine(tmp_path, basis):
+    part = "eeprom-i2c"
+    if basis:
+        part = "eeprom-ds"
+        team_part(tmp_path / "team", part, "eeprom-i2c", "memory", basis, F_MAX)
+    d = i2c_design(tmp_path, part)
+    want = check_of(d, "device-speed").status
+    assert want == ("fail" if basis else "warn")
+    mc = whatif.monte_carlo(d, 50, seed=3)
+    c = mc.find("i2c", "device-speed")
+    assert (c.fails, c.warns) == ((50, 0) if basis else (0, 50))
+    cr = whatif.corners(d)
+    got = [c for c in cr.checks if c.id == "device-speed"]
+    assert got and all(c.status == want for c in got)
+
+
+def test_candidates_take_each_parts_own_basis_batched_as_one_at_a_time(tmp_path):
+    # two team parts of one structure beside the class at U2 on a 500 kHz bus: the one
+    # recording f_max from a datasheet fails, the estimate and the class warn, in one
+    # batch as one at a time
+    team = tmp_path / "team"
+    team_part(team, "eeprom-ds", "eeprom-i2c", "memory", "datasheet", F_MAX)
+    team_part(team, "eeprom-est", "eeprom-i2c", "memory", "estimate", F_MAX)
+    d = i2c_design(tmp_path, "eeprom-i2c")
+    fast = cand.rank_candidates(d, "U2")
+    assert_same_ranking(fast, cand.rank_candidates_slow(d, "U2"))
+    by = {c.part: c for c in fast.candidates}
+    assert by["eeprom-ds"].status == "fail"
+    assert by["eeprom-ds"].worst_check["id"] == "device-speed"
+    assert by["eeprom-est"].status == by["eeprom-i2c"].status == "warn"
+    # each as the engine has it in the design
+    for part, c in by.items():
+        if c.status == "error":
+            continue
+        res = evaluate_bus(d.with_parts({"U2": part}).buses[0], d.with_parts({"U2": part}))
+        assert c.status == res.status, part
+
+
+def test_a_firm_failure_is_not_hidden_behind_a_larger_soft_one(tmp_path):
+    # two targets over their f_max at 500 kHz: the class's 400 kHz (25 % over) and a
+    # datasheet's 450 kHz (11 % over): the check names the datasheet's and fails
+    team_part(tmp_path / "team", "eeprom-450k", "eeprom-i2c", "memory", "datasheet",
+              '[timing]\nf_max = "450 kHz"\n')
+    path = tmp_path / "two.toml"
+    path.write_text(HEAD + """
+[[bus]]
+id = "i2c"
+protocol = "i2c"
+mode = "fast-plus"
+clock = "500 kHz"
+supply = "3.3 V"
+pullup = "auto"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "U2", part = "eeprom-i2c" },
+  { ref = "U3", part = "eeprom-450k" },
+]
+""", encoding="utf-8")
+    d = load_design(path, library_folders=_team(tmp_path))
+    res = evaluate_bus(d.buses[0], d)
+    chk = next(c for c in res.checks if c.id == "device-speed")
+    assert chk.status == "fail" and chk.subject == "U3"
+    assert chk.margin == pytest.approx(-1 / 9, rel=1e-12)  # derived: (450 − 500) / 450
+    # the candidates at U2 (the class and its team parts) see the same
+    ranking = cand.rank_candidates(d, "U2")
+    assert_same_ranking(ranking, cand.rank_candidates_slow(d, "U2"))
+    assert ranking.candidate("eeprom-i2c").status == "fail"
