@@ -16,7 +16,6 @@ from pinlib.engines import opendrain
 from pinlib.engines.dispatch import check_design
 from pinlib.engines.opendrain.inputs import value_source
 from pinlib.model.design import load_design
-from pinlib.model.result import warns_only
 from pinlib.physics.rc import RISE_10_90, RISE_30_70
 
 PARTS = Path(__file__).parent / "data" / "parts"
@@ -31,23 +30,7 @@ title = "engine test"
 def design(tmp_path, body: str):
     path = tmp_path / "d.toml"
     path.write_text(HEAD + body, encoding="utf-8")
-    firm = tmp_path / "firm"
-    return load_design(path, library_folders=[PARTS] + ([firm] if firm.is_dir() else []))
-
-
-def firm_part(tmp_path, part_id: str) -> str:
-    """A copy of a test part (invented test data, basis ``estimate``) whose file says
-    its values are a datasheet's: a check against them fails where it would, rather
-    than warning (model.result.soft_limit).  Returns its id, ``<part_id>-ds``; the
-    :func:`design` of ``tmp_path`` finds it."""
-    text = (PARTS / f"{part_id}.toml").read_text(encoding="utf-8")
-    assert 'basis = "estimate"' in text and f'id = "{part_id}"' in text
-    text = text.replace(f'id = "{part_id}"', f'id = "{part_id}-ds"', 1).replace(
-        'basis = "estimate"', 'basis = "datasheet"', 1)
-    folder = tmp_path / "firm"
-    folder.mkdir(exist_ok=True)
-    (folder / f"{part_id}-ds.toml").write_text(text, encoding="utf-8")
-    return f"{part_id}-ds"
+    return load_design(path, library_folders=[PARTS])
 
 
 def bus_result(tmp_path, body: str, index: int = 0):
@@ -465,13 +448,11 @@ def test_a_stated_valid_time_beyond_the_specifications_is_not_called_a_bridge_de
 
 
 def test_abs_max_against_the_pullup_rail(tmp_path):
-    sensor = firm_part(tmp_path, "t-sensor-1v8")  # its abs_max a datasheet's: a firm limit
     devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
-               f'{{ ref = "U3", part = "{sensor}", supply = "1.8 V" }}']
+               '{ ref = "U3", part = "t-sensor-1v8", supply = "1.8 V" }']
     res = bus_result(tmp_path, one_bus(vtol="5 %", devices=devices))
     chk = res.check("input-voltage")
     assert chk.status == "fail" and chk.subject == "U3"
-    assert "limit_basis" not in chk.details
     # derived: abs_max VDD + 0.3 V at the sensor's own rail minimum 1.71 V; rail 3.465 V
     assert chk.limit == pytest.approx(1.71 + 0.3)
     assert chk.value == pytest.approx(3.465)
@@ -664,15 +645,10 @@ def test_repeater_offset_against_far_receivers(tmp_path):
     t_low = 2.5e-6 * 1.3 / 1.9
     assert setup.value == pytest.approx(t_low - (0.9e-6 + 2 * 100e-9)
                                         - near.figures["rise_time_sda"].value, rel=1e-9)
-    res = bus_result(tmp_path, repeater_bus(firm_part(tmp_path, "t-sensor-1v8"), "1.8 V"))
+    res = bus_result(tmp_path, repeater_bus("t-sensor-1v8", "1.8 V"))
     chk = res.segments[1].check("bridge-offset")
     assert chk.status == "fail"   # 0.6 V offset against VIL 0.3 · 1.71 V = 0.513 V
     assert chk.limit == pytest.approx(0.513)
-    # the same VIL as an estimate (the test part's own file): a warning, not a failure
-    res = bus_result(tmp_path, repeater_bus("t-sensor-1v8", "1.8 V"))
-    chk = res.segments[1].check("bridge-offset")
-    assert chk.status == "warn" and chk.details["limit_basis"] == "estimate"
-    assert chk.limit == pytest.approx(0.513) and chk.margin < 0
 
 
 def test_two_offset_sides_facing_lock_the_bus(tmp_path):
@@ -1018,19 +994,8 @@ def test_device_speed_reads_like_spi_f_max(tmp_path):
     over = bus_result(tmp_path, one_bus(mode="fast-plus", pullup="1 kΩ",
                                         more='clock = "1.01 MHz"'))
     chk = [c for c in over.checks if c.id == "device-speed"][0]
-    # derived from the margin rule: (limit − value) / limit = (1 − 1.01) / 1; the
-    # test part's f_max is an estimate: over it warns
-    assert chk.status == "warn" and chk.margin == pytest.approx(-0.01, rel=1e-9)
-    assert chk.details["limit_basis"] == "estimate" and "estimate" in chk.message
-    assert "pinlib parts record" in chk.fix
-    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
-               f'{{ ref = "U2", part = "{firm_part(tmp_path, "t-target")}" }}']
-    over = bus_result(tmp_path, one_bus(mode="fast-plus", pullup="1 kΩ", devices=devices,
-                                        more='clock = "1.01 MHz"'))
-    chk = [c for c in over.checks if c.id == "device-speed"][0]
-    # a datasheet's f_max: over it fails
+    # derived from the margin rule: (limit − value) / limit = (1 − 1.01) / 1
     assert chk.status == "fail" and chk.margin == pytest.approx(-0.01, rel=1e-9)
-    assert "limit_basis" not in chk.details
 
 
 def test_sources_name_the_file_a_value_came_from(tmp_path):
@@ -1231,10 +1196,8 @@ def test_one_bus_numbers_hold_to_their_formulas(path, folders):
                 # derived: the relative margin of a maximum or a minimum
                 m = ((c.limit - c.value) if at_most else (c.value - c.limit)) / abs(c.limit)
                 assert c.margin == pytest.approx(m, rel=1e-12, abs=1e-15), key
-                # derived: a negative margin fails, a positive one does not; against a
-                # limit no datasheet stands behind it warns (model.result.soft_limit)
-                assert (c.status == "fail") == (m < 0 and not warns_only(c)), key
-                assert c.status == "warn" or not (m < 0 and warns_only(c)), key
+                # derived: a negative margin fails, a positive one does not
+                assert (c.status == "fail") == (m < 0), key
     # common practice, no source: the designs exercise each formula above
     # bus-leakage on the designs with an SMBus bus only (I2C has no such check)
     # rise-time-min on the designs with a Fast-mode bus only (the one mode with a tr minimum)
@@ -1522,6 +1485,7 @@ devices = [
     assert want > 0.4
     assert bus.figures["v_ol"].value == pytest.approx(want, rel=1e-9)
     # fails against a receiver's datasheet or published VIL, warns against a class's
+    # typical one (model.result.soft_limit)
     assert vol.status == ("warn" if "limit_basis" in vol.details else "fail")
     assert vol.margin < 0 and vol.value >= want * 0.94  # rail at its minimum there
     assert "at most its IOL above its VOL" in vol.message

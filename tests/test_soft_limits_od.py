@@ -7,8 +7,11 @@ The same design with the part's value recorded from a datasheet still fails."""
 
 from __future__ import annotations
 
+from pathlib import Path
+
 import pytest
 from test_candidates import assert_same_ranking
+from test_opendrain import one_bus, repeater_bus
 
 from pinlib.engines.dispatch import check_design, evaluate_bus
 from pinlib.model.design import load_design
@@ -78,7 +81,7 @@ def test_device_speed_against_a_class_value_warns_and_a_datasheet_value_fails(
     if status == "warn":
         assert chk.details["limit_basis"] == ("generic" if basis is None else basis)
         assert "a warning, not a failure" in chk.message
-        assert "record the part's f_max from its datasheet (pinlib parts record)" in chk.fix
+        assert "recording the part's f_max makes it firm" in chk.message
     else:
         assert "limit_basis" not in chk.details and "a warning" not in chk.message
 
@@ -107,7 +110,8 @@ def test_supply_range_on_an_i2c_bus(tmp_path, basis):
         assert chk.status == "fail" and "limit_basis" not in chk.details
     else:
         assert chk.status == "warn" and chk.details["limit_basis"] == "generic"
-        assert "give the device its own rail" in chk.fix and "supply range" in chk.fix
+        assert "give the device its own rail" in chk.fix
+        assert "recording the part's supply range makes it firm" in chk.message
 
 
 def gpio_design(tmp_path, part: str, tol: str = "0 %"):
@@ -216,3 +220,110 @@ devices = [
     ranking = cand.rank_candidates(d, "U2")
     assert_same_ranking(ranking, cand.rank_candidates_slow(d, "U2"))
     assert ranking.candidate("eeprom-i2c").status == "fail"
+
+
+# ------------------------------------------------ the open-drain checks, one by one
+
+TEST_PARTS = Path(__file__).parent / "data" / "parts"
+PP_PARTS = Path(__file__).parent / "data" / "pushpull"
+
+
+def estimate_of(tmp_path, part_id: str, where: Path = TEST_PARTS) -> str:
+    """A copy of a test part (invented test data, basis ``datasheet``) whose file says
+    its values are an estimate: ``<part_id>-est``, in ``tmp_path / "team"``."""
+    text = (where / f"{part_id}.toml").read_text(encoding="utf-8")
+    assert 'basis = "datasheet"' in text and f'id = "{part_id}"' in text
+    folder = tmp_path / "team"
+    folder.mkdir(exist_ok=True)
+    (folder / f"{part_id}-est.toml").write_text(
+        text.replace(f'id = "{part_id}"', f'id = "{part_id}-est"', 1).replace(
+            'basis = "datasheet"', 'basis = "estimate"', 1), encoding="utf-8")
+    return f"{part_id}-est"
+
+
+def od_bus(tmp_path, body: str):
+    """The one bus of a design of test parts (test_opendrain's helpers write ``body``)."""
+    path = tmp_path / "od.toml"
+    path.write_text(HEAD + body, encoding="utf-8")
+    d = load_design(path, library_folders=[TEST_PARTS] + _team(tmp_path))
+    return evaluate_bus(d.buses[0], d)
+
+
+def _devices(ctrl: str, target: str) -> list:
+    return [f'{{ ref = "U1", part = "{ctrl}", role = "controller" }}',
+            f'{{ ref = "U2", part = "{target}" }}']
+
+
+@pytest.mark.parametrize("soft", [False, True])
+def test_input_voltage_against_an_estimated_abs_max(tmp_path, soft):
+    # t-sensor-1v8 (invented) on its own 1.8 V rail, pulled up to 3.3 V ± 5 %: 3.465 V
+    # against abs_max VDD + 0.3 V = 2.01 V at its rail's minimum
+    sensor = estimate_of(tmp_path, "t-sensor-1v8") if soft else "t-sensor-1v8"
+    devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
+               f'{{ ref = "U3", part = "{sensor}", supply = "1.8 V" }}']
+    chk = od_bus(tmp_path, one_bus(vtol="5 %", devices=devices)).check("input-voltage")
+    assert chk.limit == pytest.approx(1.71 + 0.3) and chk.margin < 0
+    assert chk.status == ("warn" if soft else "fail")
+    assert "translator" in chk.fix  # the design's fix stays
+    if soft:
+        assert chk.details["limit_basis"] == "estimate"
+        assert "recording the part's abs_max makes it firm" in chk.message
+
+
+@pytest.mark.parametrize("soft", [False, True])
+def test_bridge_offset_against_an_estimated_vil(tmp_path, soft):
+    # the repeater's 0.6 V offset low against VIL 0.3 · 1.71 V = 0.513 V (invented parts)
+    far = estimate_of(tmp_path, "t-sensor-1v8") if soft else "t-sensor-1v8"
+    res = od_bus(tmp_path, repeater_bus(far, "1.8 V"))
+    chk = res.segments[1].check("bridge-offset")
+    assert chk.limit == pytest.approx(0.513) and chk.margin < 0
+    assert chk.status == ("warn" if soft else "fail")
+    assert ("limit_basis" in chk.details) == soft
+
+
+@pytest.mark.parametrize("ctrl_soft, target_soft, want", [
+    (False, False, "fail"), (False, True, "fail"), (True, False, "fail"),
+    (True, True, "warn")])
+def test_levels_and_sink_fail_on_any_firm_limit(tmp_path, ctrl_soft, target_soft, want):
+    # derived: 4.7 MΩ carrying the two pins' 2 µA (invented) would drop 9.4 V: the high
+    # level rests at 0 V, under both receivers' VIH; 470 Ω draws 3.3 V / (470 Ω + 133 Ω)
+    # = 5.5 mA into each driver rated 3 mA at 0.4 V.  Either receiver's or driver's
+    # datasheet value makes the check fail; both estimates, it warns
+    ctrl = estimate_of(tmp_path, "t-ctrl-3v3") if ctrl_soft else "t-ctrl-3v3"
+    target = estimate_of(tmp_path, "t-target") if target_soft else "t-target"
+    res = od_bus(tmp_path, one_bus(pullup="4.7 MΩ", devices=_devices(ctrl, target)))
+    voh = next(c for c in res.checks if c.id == "v-oh" and c.subject.startswith("SDA"))
+    assert voh.value == 0.0 and voh.status == want
+    if want == "fail":  # the check names a receiver whose VIH is firm
+        firm = "U2" if ctrl_soft else "U1"
+        assert voh.subject == f"SDA {firm}"
+    res = od_bus(tmp_path, one_bus(pullup="470 Ω", devices=_devices(ctrl, target)))
+    sink = next(c for c in res.checks if c.id == "sink-current" and c.subject.startswith("SDA"))
+    assert sink.margin < 0 and sink.status == want
+    if want == "fail":
+        assert sink.subject == ("SDA U2" if ctrl_soft else "SDA U1")
+    else:
+        assert sink.details["limit_basis"] == "estimate"
+        assert "recording the part's IOL makes it firm" in sink.message
+
+
+def test_a_push_pull_sink_rating_that_is_an_estimate_warns(tmp_path):
+    # tests/test_sink.py's line with pp-ctrl's values an estimate: past its IOL (1 mA at
+    # 0.2 V, invented) it warns; the design's fix stays
+    pp = estimate_of(tmp_path, "pp-ctrl", PP_PARTS)
+    folders = [PP_PARTS, tmp_path / "team"]
+    path = tmp_path / "g.toml"
+    path.write_text(HEAD + f"""library = [{", ".join(repr(f.as_posix()) for f in folders)}]
+[[bus]]
+id = "g"
+protocol = "gpio"
+supply = "3.3 V"
+devices = [{{ ref = "U1", part = "{pp}", role = "controller", pin = "cs" }},
+           {{ ref = "U2", part = "pp-periph", pin = "cs" }}]
+lines.g = {{ length = "5 cm", capacitance = "1 pF/cm", delay = "60 ps/cm", pullup = "1 kΩ" }}
+""", encoding="utf-8")
+    d = load_design(path)
+    (ln,) = evaluate_bus(d.bus("g"), d).lines
+    (chk,) = [c for c in ln.checks if c.id == "sink-current"]
+    assert chk.margin < 0 and chk.status == "warn"
+    assert chk.details["limit_basis"] == "estimate" and "3.1 kΩ" in chk.fix
