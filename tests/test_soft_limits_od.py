@@ -327,3 +327,22 @@ lines.g = {{ length = "5 cm", capacitance = "1 pF/cm", delay = "60 ps/cm", pullu
     (chk,) = [c for c in ln.checks if c.id == "sink-current"]
     assert chk.margin < 0 and chk.status == "warn"
     assert chk.details["limit_basis"] == "estimate" and "3.1 kΩ" in chk.fix
+
+
+@pytest.mark.parametrize("ctrl_soft, target_soft, want", [
+    (False, False, "fail"), (True, False, "fail"), (False, True, "fail"),
+    (True, True, "warn")])
+def test_pullup_window_below_rp_min_of_a_soft_sink(tmp_path, ctrl_soft, target_soft, want):
+    # derived: UM10204 eq. 2, Rp(min) = (3.3 V − 0.4 V) / 3 mA = 967 Ω, set by both
+    # drivers alike (invented parts, the same sink point): 470 Ω is below it.  It rests
+    # on a datasheet's point unless both are estimates
+    ctrl = estimate_of(tmp_path, "t-ctrl-3v3") if ctrl_soft else "t-ctrl-3v3"
+    target = estimate_of(tmp_path, "t-target") if target_soft else "t-target"
+    res = od_bus(tmp_path, one_bus(pullup="470 Ω", devices=_devices(ctrl, target)))
+    win = next(c for c in res.checks if c.id == "pullup-window" and c.subject == "SDA")
+    assert win.details["rp_min"] == pytest.approx(2.9 / 3e-3, rel=1e-12)
+    assert win.margin < 0 and win.status == want
+    assert ("limit_basis" in win.details) == (want == "warn")
+    # the candidates at U2 take the same rule, batched as one at a time
+    d = load_design(tmp_path / "od.toml", library_folders=[TEST_PARTS] + _team(tmp_path))
+    assert_same_ranking(cand.rank_candidates(d, "U2"), cand.rank_candidates_slow(d, "U2"))

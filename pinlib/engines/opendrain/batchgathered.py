@@ -20,6 +20,7 @@ from pinlib.engines.opendrain.batchinputs import (
     _Parts,
     _Receiver,
     _Tap,
+    rp_min_rests_on,
     soft_flags,
 )
 from pinlib.engines.opendrain.inputs import LineInputs
@@ -61,4 +62,5 @@ def line_from(li: LineInputs, seg: Segment, parts: _Parts, scen: Scenario) -> _L
                  for r in li.receivers]
     return _Line(li.signal, list(taps.values()), li.cb, li.leakage, drivers, receivers,
                  li.r_parts, li.rp_min, li.rp_max, li.rise_factor, li.rp_leak, li.rp_fast,
-                 li.cb_low)
+                 li.cb_low,
+                 soft_min=bool(rp_min_rests_on(li, seg.supply * (1 + seg.supply_tolerance))))

@@ -193,7 +193,7 @@ def _timing(w: Words, sb) -> None:
         chk = make(bc, value_source(d, "timing.f_max", d.part.timing.f_max),
                    f"clock {_f(clock, 'Hz')} against the slowest device {d.ref}'s "
                    f"rated {_f(bc.limit[0], 'Hz')}", subject=d.ref)
-        grp.add(firm_or_soft(chk, bc, d.part.timing.f_max, "f_max"))
+        grp.add(firm_or_soft(chk, bc, d.part.timing.f_max, what="f_max"))
     bc = w.peek("setup-time")
     if bc is None:
         f = grp.figures.get("sda_setup_margin")
@@ -250,7 +250,7 @@ def _domains(w: Words, taps: list) -> None:
                        f"{_f(seg_in.segment.supply, 'V')} rail, or pull this segment up to "
                        f"{_f(rails[0], 'V')} if every device on it accepts that rail")
             chk.message += f"; {chk.fix}"
-        grp.add(firm_or_soft(chk, bc, t.pin.abs_max, "abs_max"))
+        grp.add(firm_or_soft(chk, bc, t.pin.abs_max, what="abs_max"))
     bc = w.peek("supply-range")
     if bc is not None:
         w.take("supply-range")
@@ -266,7 +266,7 @@ def _domains(w: Words, taps: list) -> None:
             chk.fix = ("give the device its own rail (supply = \"...\" on the device) or choose "
                        "a part for this rail")
             chk.message += f"; {chk.fix}"
-        grp.add(firm_or_soft(chk, bc, sup.min if low else sup.max, "supply range"))
+        grp.add(firm_or_soft(chk, bc, sup.min if low else sup.max, what="supply range"))
 
 
 def _power(w: Words, taps: list) -> None:
@@ -391,4 +391,4 @@ def _offset(w: Words, d) -> None:
                    "replace those with VIL below it, or turn the repeater so its offset "
                    "side faces devices with VIL = 0.3·VDD at a higher rail")
         chk.message += f"; {chk.fix}"
-    w.grp.add(firm_or_soft(chk, bc, r.tap.pin.v_il, "VIL"))
+    w.grp.add(firm_or_soft(chk, bc, r.tap.pin.v_il, what="VIL"))
