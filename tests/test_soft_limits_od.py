@@ -346,3 +346,24 @@ def test_pullup_window_below_rp_min_of_a_soft_sink(tmp_path, ctrl_soft, target_s
     # the candidates at U2 take the same rule, batched as one at a time
     d = load_design(tmp_path / "od.toml", library_folders=[TEST_PARTS] + _team(tmp_path))
     assert_same_ranking(cand.rank_candidates(d, "U2"), cand.rank_candidates_slow(d, "U2"))
+
+
+@pytest.mark.parametrize("basis, want", [("generic", "warn"), ("estimate", "warn"),
+                                         ("datasheet", "fail"), (None, "fail")])
+def test_crosstalk_against_a_soft_threshold_warns(basis, want):
+    # a held-low SCL lifted to 1.2 V for 80 ns against VIL 0.99 V, past the 50 ns filter
+    # (invented numbers; tSP published: UM10204 rev. 6, table 9): it fails against a
+    # datasheet's or the specification's VIL (None), warns against a soft one
+    from pinlib.engines.crosstalk import EndNoise, Victim, coupling_checks
+    from pinlib.library.values import Sourced
+
+    vil = None if basis is None else Sourced(0.99, "V", "0.3 VDD", basis=basis)
+    ends = ("near", "far")
+    vic = Victim(vdd=3.3, r_pullup=2.2e3, r_sink=25.0, c={e: 5e-12 for e in ends},
+                 vil={e: 0.99 for e in ends}, vih={e: 2.31 for e in ends}, signal="scl",
+                 t_sp=50e-9, value_vil=vil)
+    (level, glitch) = coupling_checks({("low", "near"): EndNoise(1.2, 80e-9, False)}, vic,
+                                      subject="b.scl")
+    assert level.id == "crosstalk-low" and level.margin < 0 and level.status == want
+    assert (level.details.get("limit_basis") is not None) == (want == "warn")
+    assert glitch.status == "fail"  # tSP is the specification's: firm
