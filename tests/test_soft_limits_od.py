@@ -367,3 +367,25 @@ def test_crosstalk_against_a_soft_threshold_warns(basis, want):
     assert level.id == "crosstalk-low" and level.margin < 0 and level.status == want
     assert (level.details.get("limit_basis") is not None) == (want == "warn")
     assert glitch.status == "fail"  # tSP is the specification's: firm
+
+
+@pytest.mark.parametrize("mode, want", [("standard", "warn"), ("fast", "fail")])
+def test_the_standards_own_sink_point_is_firm_but_where_it_gives_none(tmp_path, mode, want):
+    # two drivers stating no sink point (invented parts) on a 1.8 V rail with 330 Ω: in
+    # Fast-mode they are taken at VOL2, 0.2·VDD at 2 mA (published: UM10204 rev. 6,
+    # table 9), a firm limit; Standard-mode has no point at 2 V and below, and VOL1 (0.4 V
+    # at 3 mA) is taken as an estimate: the sink and the window warn
+    devices = ['{ ref = "U1", part = "t-controller-bare", role = "controller" }',
+               '{ ref = "U2", part = "t-target-bare" }']
+    res = od_bus(tmp_path, one_bus(mode=mode, supply="1.8 V", pullup="330 Ω",
+                                   devices=devices))
+    sink = next(c for c in res.checks if c.id == "sink-current" and c.subject.startswith("SDA"))
+    win = next(c for c in res.checks if c.id == "pullup-window" and c.subject == "SDA")
+    for chk in (sink, win):
+        assert chk.margin < 0 and chk.status == want, chk.id
+        assert chk.details.get("limit_basis") == ("estimate" if want == "warn" else None)
+    # derived: UM10204 eq. 2, Rp(min) = (1.8 V − 0.4 V) / 3 mA, or (1.8 − 0.36) / 2 mA
+    rp_min = (1.8 - 0.4) / 3e-3 if mode == "standard" else (1.8 - 0.36) / 2e-3
+    assert win.details["rp_min"] == pytest.approx(rp_min, rel=1e-9)
+    d = load_design(tmp_path / "od.toml", library_folders=[TEST_PARTS])
+    assert_same_ranking(cand.rank_candidates(d, "U2"), cand.rank_candidates_slow(d, "U2"))

@@ -155,14 +155,17 @@ def _pin_data(pin, name: str, part: Part, dev: Device, lim: OpenDrainLimits,
         t_of_min=float(pin.t_of_min.value) if pin.t_of_min is not None else None,
         t_of_max=float(pin.t_of_max.value) if pin.t_of_max is not None else None,
         spec_levels=(pin.v_il is None, pin.v_ih is None),
-        **soft_flags(pin),
+        **soft_flags(pin, {"v_ol": d_vol, "i_ol": d_iol, "v_il": d_il, "v_ih": d_ih}),
     )
 
 
-def soft_flags(pin) -> dict:
+def soft_flags(pin, taken: dict) -> dict:
     """The ``soft_*`` fields of :class:`PinData` for a part's pin: whether each limit
-    it states rests on a soft value (one it leaves to the specification does not). [1]"""
-    return {f"soft_{name}": _soft(getattr(pin, name))
+    the engine takes of it rests on a soft value: its own, else the specification's in
+    ``taken`` (by field; published, but UM10204's VOL1 where its table gives the mode
+    no point is an estimate), or ``taken``'s where it names the value taken. [1]"""
+    return {f"soft_{name}": _soft(getattr(pin, name) if getattr(pin, name) is not None
+                                  else taken.get(name))
             for name in ("i_ol", "v_ol", "v_il", "v_ih", "abs_max")}
 
 
@@ -180,8 +183,7 @@ def rp_min_rests_on(li, v_max: float) -> list:
         tying = [d for d, r in zip(li.drivers, bounds, strict=True) if best > 0 and r == best]
     values = []
     for d in tying:
-        pin = d.tap.pin
-        soft = [x for x in (pin.v_ol, pin.i_ol) if _soft(x)]
+        soft = [x for x in (d.v_ol_value, d.i_ol_value) if _soft(x)]
         if not soft:
             return []
         values += soft

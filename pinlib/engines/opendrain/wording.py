@@ -353,7 +353,7 @@ def _v_ol(w: Words, ln: LineInputs, far: list) -> None:
         _failed(chk, f"receivers {few_named(failing)} read the low level as high: a larger "
                      "pull-up, a stronger sink, smaller series resistors"
                      + ("" if far else ", or a translator"))
-    w.grp.add(firm_or_soft(chk, bc, r.tap.pin.v_il, what="VIL"))
+    w.grp.add(firm_or_soft(chk, bc, r.v_il_value, what="VIL"))
     _noise_margin(w, up, "low", "lowest VIL − low level", lim.v_nl_rel)
 
 
@@ -435,7 +435,7 @@ def _sink(w: Words, ln: LineInputs, far: list) -> None:
     elif chk.status == "fail":
         _failed(chk, f"raise the effective pull-up to at least "
                      f"{_f(ln.rp_min / (1 - tol), 'Ω')} (Rp(min) at −{_f(tol, '%')})")
-    w.grp.add(firm_or_soft(chk, bc, d.tap.pin.i_ol, what="IOL"))
+    w.grp.add(firm_or_soft(chk, bc, d.i_ol_value, what="IOL"))
 
 
 def _v_oh(w: Words, ln: LineInputs, rp_hi: float) -> None:
@@ -460,7 +460,7 @@ def _v_oh(w: Words, ln: LineInputs, rp_hi: float) -> None:
         _failed(chk, f"{few_named(failing)} cannot read the pull-up rail as high: pull up to "
                      "a rail they accept, put a level translator between, or lower the pull-up "
                      f"(leakage drop){': ' + fix if fix else ''}")
-    w.grp.add(firm_or_soft(chk, bc, r.tap.pin.v_ih, what="VIH"))
+    w.grp.add(firm_or_soft(chk, bc, r.v_ih_value, what="VIH"))
     _noise_margin(w, up, "high", "high level − highest VIH", lim.v_nh_rel, ln, rp_hi)
 
 

@@ -391,4 +391,4 @@ def _offset(w: Words, d) -> None:
                    "replace those with VIL below it, or turn the repeater so its offset "
                    "side faces devices with VIL = 0.3·VDD at a higher rail")
         chk.message += f"; {chk.fix}"
-    w.grp.add(firm_or_soft(chk, bc, r.tap.pin.v_il, what="VIL"))
+    w.grp.add(firm_or_soft(chk, bc, r.v_il_value, what="VIL"))
