@@ -114,18 +114,20 @@ def test_new_names_each_part_whose_supply_range_excludes_its_bus_rail(tmp_path, 
     fpga, flash, adc = ("U10 (3.135 V to 3.465 V)", "U11 (2.7 V to 3.6 V)",
                         "U12 (2.7 V to 5.5 V)")
     assert (f"note: bus i2c: its rail, 1.8 V ± 5 %, is outside the supply range of "
-            f"{fpga}, which 'pinlib check' fails") in err, err
+            f"{fpga}, which 'pinlib check' flags") in err, err
     assert (f"note: bus spi: its rail, 1.8 V ± 5 %, is outside the supply range of "
-            f"{fpga}, {flash} and {adc}, which 'pinlib check' fails") in err, err
+            f"{fpga}, {flash} and {adc}, which 'pinlib check' flags") in err, err
     assert "U2 (" not in err and "U4 (" not in err  # the parts that run from 1.8 V
     assert flat.count("This rail, 1.8 V ± 5 %, is outside the supply range of") == 2
     assert f"{fpga}, {flash} and {adc}" in flat
     assert all(len(line) <= 80 for line in text.splitlines())
-    # the parts named are exactly those 'pinlib check' fails at their supply range
-    assert main(["check", str(path), "--json"]) == 1
+    # the parts named are exactly those 'pinlib check' flags at their supply range (the
+    # built-in classes' ranges are typical of the class: each warns, model.result.
+    # soft_limit)
+    main(["check", str(path), "--json"])
     got = json.loads(capsys.readouterr().out)
     failed = {(b["id"], c["subject"]) for b in got["buses"] for c in b["checks"]
-              if c["id"] == "supply-range" and c["status"] == "fail"}
+              if c["id"] == "supply-range" and c["status"] != "pass"}
     assert failed == {("i2c", "U10"), ("spi", "U10"), ("spi", "U11"), ("spi", "U12")}
     # parts that all run from the rail: no such note
     path2 = tmp_path / "two.toml"

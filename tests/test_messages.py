@@ -3611,6 +3611,18 @@ def _message_of(env, body: str, check_id: str, subject: str) -> str:
                 if c["id"] == check_id and c.get("subject") == subject)
 
 
+@case("UNFIT_SOFT", M.UNFIT_SOFT.format(part="eeprom-i2c", checks="device-speed"))
+def _(env):
+    # the built-in eeprom-i2c rates f_max 400 kHz, typical of its class: on a 1 MHz
+    # Fast-mode Plus bus the bus builder's offer warns rather than fails
+    from pinlib.library.loader import load_library as load
+    from pinlib.present.widgets.partfit import unfit_on_bus, unfit_sentence
+
+    part = load([], env=False).get("eeprom-i2c")
+    return unfit_sentence("eeprom-i2c", unfit_on_bus(
+        part, protocol="i2c", mode="fast-plus", supply=3.3, tolerance=0.05, clock=1e6))
+
+
 @case("SOFT_LIMIT_GENERIC", M.SOFT_LIMIT_GENERIC.format(what="f_max"))
 def _(env):
     # the built-in adc-spi's f_max, 20 MHz, is typical of its class, at a 25 MHz clock

@@ -1484,7 +1484,10 @@ devices = [
     want = vdd - 3e-3 * rp
     assert want > 0.4
     assert bus.figures["v_ol"].value == pytest.approx(want, rel=1e-9)
-    assert vol.status == "fail" and vol.value >= want * 0.94  # rail at its minimum there
+    # fails against a receiver's datasheet or published VIL, warns against a class's
+    # typical one (model.result.soft_limit)
+    assert vol.status == ("warn" if "limit_basis" in vol.details else "fail")
+    assert vol.margin < 0 and vol.value >= want * 0.94  # rail at its minimum there
     assert "at most its IOL above its VOL" in vol.message
 
 

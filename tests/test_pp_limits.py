@@ -74,7 +74,6 @@ def test_a_device_exactly_at_its_rated_clock_passes():
 def test_supply_range_on_spi_and_gpio_buses():
     d = load_design(DATA / "spi-5v-flash.toml")
     res = check_design(d)
-    assert res.exit_code() == 1
     for bus_id, ref in (("flash", "U2"), ("irq", "U3")):
         bus = res.bus(bus_id)
         chk = [c for c in bus.checks if c.id == "supply-range" and c.subject == ref][0]
@@ -82,7 +81,10 @@ def test_supply_range_on_spi_and_gpio_buses():
         # class nor-flash-spi's 3.6 V maximum (common practice, no source)
         assert chk.value == pytest.approx(5.25, rel=1e-12)
         assert chk.limit == pytest.approx(3.6, rel=1e-12)
-        assert chk.status == "fail" and "rail 5 V +5 %" in chk.message
+        # the class's range is typical, not a datasheet's: beyond it a warning
+        # (model.result.soft_limit)
+        assert chk.status == "warn" and "rail 5 V +5 %" in chk.message
+        assert chk.margin < 0 and chk.details["limit_basis"] == "generic"
         ok = [c for c in bus.checks if c.id == "supply-range" and c.subject == "U1"][0]
         # common practice, no source: mcu-5v 4.5-5.5 V holds the 4.75-5.25 V rail
         assert ok.status == "pass"
@@ -107,7 +109,7 @@ def test_supply_range_source_is_worded_alike_on_every_bus(tmp_path):
         tmp_path, "low rail", "1 MHz", "1.8 V", '{ ref = "U1", part = "mcu-3v3", '
         'role = "controller" }', '{ ref = "U2", part = "nor-flash-spi" }')))
     (u1,) = [c for c in low.bus("spi0").checks if c.id == "supply-range" and c.subject == "U1"]
-    assert u1.status == "fail" and u1.limit == pytest.approx(3.0)
+    assert u1.status == "warn" and u1.limit == pytest.approx(3.0)  # the class's: soft
     assert u1.source == ("mcu-3v3 supply.min (mcu-3v3.toml), generic: typical of the class "
                          "(common practice)")
 

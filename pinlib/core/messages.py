@@ -786,6 +786,10 @@ UNKNOWN_LIMIT_KIND = "unknown limit kind"
 TOO_FEW_BINS = "too few bins"
 
 # ---------------------------------------------------------------- pinlib/present/widgets/
+# partfit.py: a peripheral offered on a bus whose limits it
+# would pass only past a value typical of its class or an estimate (the checks warn)
+UNFIT_SOFT = ("If added, {part} would warn on this bus ({checks}, against values typical "
+              "of its class or estimated, not its datasheet's): ")
 NOT_A_LISTED_VALUE = "not a value of the {what}"
 UNKNOWN_SETTING = "unknown setting"
 OUTSIDE_CONTROL_RANGE = "outside the control's range"
@@ -929,6 +933,7 @@ MODULES = (
     "pinlib.present.widgets.common",
     "pinlib.present.widgets.designdoc",
     "pinlib.present.widgets.busbuilder",
+    "pinlib.present.widgets.partfit",
     "pinlib.present.widgets.lineexplorer",
     "pinlib.present.widgets.spibudget",
     "pinlib.present.widgets.recorder",

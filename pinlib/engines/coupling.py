@@ -135,7 +135,8 @@ def victim_of(coupling: Coupling, bus: BusResult, pair, design: Design) -> Victi
                   sink_end="far",
                   source_levels=f"{vil.tap.label} {_level_source(vil, 'v_il', lim)}",
                   source_vih=f"{vih.tap.label} {_level_source(vih, 'v_ih', lim)}",
-                  source_t_sp=source_t_sp)
+                  source_t_sp=source_t_sp, value_vil=vil.v_il_value,
+                  value_vih=vih.v_ih_value)
 
 
 def _sink(coupling: Coupling, seg, seg_ins) -> tuple[float, float, str]:

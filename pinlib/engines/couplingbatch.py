@@ -21,7 +21,7 @@ from pinlib.engines.coupling import pair_at
 from pinlib.engines.crosstalk import noise_batch
 from pinlib.engines.opendrain.batch import BatchCheck
 from pinlib.model.design import Coupling
-from pinlib.model.result import CouplingResult, max_margin, status_codes
+from pinlib.model.result import CouplingResult, max_margin, status_codes, warns_only
 
 __all__ = ["POINTS", "parameter_specs", "CouplingTable", "CouplingBatch", "build"]
 
@@ -133,8 +133,8 @@ def build(c: Coupling, nominal: CouplingResult, table: CouplingTable, factors: d
                 else -max_margin(value, limit)
             status = status_codes(margin, warn_margin)
             status = np.where((status == 2) & ~passes_filter, 1, status).astype(np.int8)
-        if vic.signal != "scl":  # SDA: a warning at worst
-            status = np.minimum(status, 1).astype(np.int8)
+        if vic.signal != "scl" or warns_only(chk):  # SDA, or a soft VIL/VIH: a warning
+            status = np.minimum(status, 1).astype(np.int8)    # at worst (as the engine)
         items.append(BatchCheck(chk.id, "", chk.subject, value,
                                 None if limit is None else np.full(n, limit), margin,
                                 status, chk.unit))

@@ -24,6 +24,7 @@ Checks at each end of the victim, for a held-low and a held-high line:
 from __future__ import annotations
 
 import math
+from typing import Any
 
 import numpy as np
 
@@ -33,7 +34,7 @@ from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
 from pinlib.core.worklimits import MAX_COUPLED_STEPS
 from pinlib.model.design.coupling import Aggressor
-from pinlib.model.result import Check, check_max, check_min
+from pinlib.model.result import Check, check_max, check_min, soft_limit
 from pinlib.physics.coupled import RAMP_FROM_10_90, CoupledLine
 from pinlib.physics.coupledwave import EndLoads, coupled_waves_batch
 from pinlib.physics.lines.model import C0
@@ -75,6 +76,11 @@ class Victim:
     source_sink: str = ""      # the sink's driver where it is not on the line itself
     corner_low: str = ""       # the rail corner each held state is taken at (check text)
     corner_high: str = ""
+    #: The part values VIL and VIH are (:class:`~pinlib.library.values.Sourced`; None for
+    #: the specification's levels): against a soft one a crossing warns where it would
+    #: fail (:func:`pinlib.model.result.soft_limit`).
+    value_vil: Any = None
+    value_vih: Any = None
 
     def held_level(self, held: str) -> float:
         """The level the line rests at, held ``'low'`` (the sink against the pull-up) or
@@ -285,6 +291,10 @@ def coupling_checks(noise: dict, vic: Victim, *, subject: str, warn_margin=0.10)
         elif chk.status == "fail" and vic.signal != "scl":
             chk.status = "warn"
             chk.message += _SDA_NOTE
+        if held == "low":
+            soft_limit(chk, vic.value_vil, what="VIL")
+        else:
+            soft_limit(chk, vic.value_vih, what="VIH")
         checks.append(chk)
         if n.beyond > 0:
             checks.append(_glitch(n, vic, where, subject, end, held))

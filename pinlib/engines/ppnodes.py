@@ -137,11 +137,14 @@ def plan(names, node_checks, labels, values, sa, bus, design) -> list:
 
 
 def supply_plan(bus: Bus, ref: str) -> tuple:
-    """A device's supply-range check: its rail's key and value, and its part's range."""
-    for d, v, lo, hi, _ in pp.supply_rows(bus):
+    """A device's supply-range check: its rail's key and value, its part's range, and
+    whether each end of that range is soft (at most a warning beyond it:
+    :func:`pinlib.model.result.soft_limit`)."""
+    for d, v, lo, hi, _, sourced in pp.supply_rows(bus):
         if d.ref == ref:
             vtol = bus.supply_tolerance or 0.0
-            return ("supply", ppv.rail_key(v, vtol) if vtol > 0 else None, v, lo, hi)
+            soft = tuple(bool(x is not None and x.soft) for x in sourced)
+            return ("supply", ppv.rail_key(v, vtol) if vtol > 0 else None, v, lo, hi, soft)
     raise AssertionError(ref)  # the engine made the check from these rows
 
 

@@ -19,10 +19,12 @@ __all__ = ["supply_rows", "supply_checks"]
 
 def supply_rows(bus: Bus) -> list[tuple]:
     """Each device of the bus whose part states a supply range:
-    ``(device, rail, min, max, source_of)``, the rail the device runs from (its own, else
-    the bus's), its part's range on that side, and ``source_of(low)`` the check's source
-    at the low or the high end (:func:`pinlib.engines.opendrain.inputs.supply_source`, as
-    the open-drain engine words it). [V]"""
+    ``(device, rail, min, max, source_of, sourced)``, the rail the device runs from (its
+    own, else the bus's), its part's range on that side, ``source_of(low)`` the check's
+    source at the low or the high end (:func:`pinlib.engines.opendrain.inputs.
+    supply_source`, as the open-drain engine words it), and ``sourced`` the range's
+    ``(min, max)`` as the part states them (their basis: a range no datasheet stands
+    behind warns where it would fail). [V]"""
     out, seen = [], set()
     for d in bus.devices:
         if d.ref in seen:
@@ -32,17 +34,18 @@ def supply_rows(bus: Bus) -> list[tuple]:
         if sup is None:
             continue
         out.append((d, device_supply(d, bus), float(sup.min.value), float(sup.max.value),
-                    lambda low, d=d, sup=sup: supply_source(d, sup, low)))
+                    lambda low, d=d, sup=sup: supply_source(d, sup, low), (sup.min, sup.max)))
     return out
 
 
 def supply_checks(bus: Bus) -> list[Check]:
     """Every device's rail against its part's supply range (the rule of the open-drain
     engine: :func:`pinlib.engines.opendrain.rules.supply_range_check`, a datasheet range is a
-    hard limit, no warning band).  The rail's tolerance enters through the corners
-    :func:`pinlib.engines.pushpull.evaluate_bus` takes. [V]"""
+    hard limit, no warning band; a class's typical range warns where it would fail).  The
+    rail's tolerance enters through the corners :func:`pinlib.engines.pushpull.evaluate_bus`
+    takes. [V]"""
     out = []
-    for d, v, lo, hi, src in supply_rows(bus):
-        chk = supply_range_check(d.ref, v, v, lo, hi, src, ends=False)
+    for d, v, lo, hi, src, sourced in supply_rows(bus):
+        chk = supply_range_check(d.ref, v, v, lo, hi, src, ends=False, sourced=sourced)
         out.append(chk)
     return out

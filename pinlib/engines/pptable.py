@@ -242,12 +242,14 @@ class LineTable:
                 _, mg, val, lim, code = plan
                 margin[j], value[j], limit[j], status[j] = mg, val, lim, code
             elif kind == "supply":  # the engine's rule, at each board's rail
-                _, key, v, lo, hi = plan
+                _, key, v, lo, hi, soft = plan
                 f = factors.get(key) if key is not None else None
                 rail = v * (np.ones(n) if f is None else np.asarray(f, dtype=float).reshape(n))
                 mg, low = supply_margin(rail, rail, lo, hi)
                 margin[j], value[j], limit[j] = mg, rail, np.where(low, lo, hi)
-                status[j] = status_codes(mg, 0.0)
+                # beyond a soft end of the range at most a warning (model.result.soft_limit)
+                status[j] = np.where(np.where(low, *soft), np.minimum(status_codes(mg, 0.0), 1),
+                                     status_codes(mg, 0.0))
             elif kind == "line":
                 _, sig, slots, margin_rule, code = plan
                 vals = got[sig]

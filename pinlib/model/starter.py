@@ -154,7 +154,8 @@ RAIL_TOLERANCE = 0.05
 def _off_rail(members, rail: float) -> list[str]:
     """``U10 (3.135 V to 3.465 V)`` for each of ``members`` ((placement, part) pairs)
     whose stated supply range does not hold the whole of ``rail`` ± :data:`RAIL_TOLERANCE`:
-    the parts ``pinlib check`` fails at their supply range on the rail as written."""
+    the parts ``pinlib check`` flags at their supply range on the rail as written (fails,
+    or warns where the range is a class's typical one)."""
     lo, hi = rail * (1 - RAIL_TOLERANCE), rail * (1 + RAIL_TOLERANCE)
     slack = 1e-9  # 1.8 V x 0.95 is 1.71 V less a unit in the last place
     out = []
@@ -177,7 +178,7 @@ def _off_rail_lines(where: str, members, rail: float, notes) -> list[str]:
         return []
     band = f"{format_si(rail, 'V')} ± {RAIL_TOLERANCE * 100:g} %"
     fix = "give it a rail it runs from" if len(off) == 1 else "give them a rail they run from"
-    said = (f"outside the supply range of {and_list(off)}, which 'pinlib check' fails: "
+    said = (f"outside the supply range of {and_list(off)}, which 'pinlib check' flags: "
             f"{fix}")
     if notes is not None:
         notes.append(f"{where}: its rail, {band}, is {said}, or choose parts for this rail")

@@ -56,6 +56,7 @@ from pinlib.engines.opendrain.batchinputs import (
     structure,
 )
 from pinlib.engines.opendrain.batchresult import (
+    AT_LIMIT,
     STATUS,
     BatchCheck,
     BusBatch,
@@ -135,10 +136,12 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     # an unbounded Rp(max) (Cb 0) is never the nearer bound: against it the margin
     # would be inf/inf
     low = (m_lo <= m_hi) | np.isinf(ln.rp_max)
+    # Rp(min) rests on the weakest sink's point (soft where it is a class's typical one)
+    soft = [np.logical_and(low, ln.soft_min)] if np.any(ln.soft_min) else None
     out.pick("pullup-window", up, [(np.where(low, rp_lo, rp_hi),
                                     np.where(low, ln.rp_min, ln.rp_max),
-                                    np.where(low, -1.0, 1.0), None)], warn, "Ω").basis = \
-        (m_lo, m_hi)
+                                    np.where(low, -1.0, 1.0), None)], warn, "Ω",
+             soft=soft).basis = (m_lo, m_hi)
     tr = phys.rise_time(rp_hi, ln.cb, ln.rise_factor)
     f["rise_time"] = tr
     f["rise_time_10_90"] = phys.rise_time(rp_hi, ln.cb, RISE_10_90)
@@ -168,7 +171,8 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
         f["v_ol"] = _worst_max(vol_bus)
         if ln.receivers:
             chk = out.pick("v-ol", up, [le(vol_bus, r.v_il) for r in ln.receivers], warn, "V",
-                           [r.tap.label for r in ln.receivers], per_row=True)
+                           [r.tap.label for r in ln.receivers], per_row=True,
+                           soft=[r.tap.pin.soft_v_il for r in ln.receivers])
             behind = [d.tap.label + ("" if link is None else f" via {link.dev.ref}")
                       for _, _, d, link in raw]
             out.after(lambda: _driver_behind(chk, stacked, ctx.n, behind))
@@ -191,7 +195,8 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     f["v_oh"] = np.min(voh, axis=-1, keepdims=True)
     if ln.receivers:
         out.pick("v-oh", up, [ge(voh, r.v_ih) for r in ln.receivers], warn,
-                 "V", [r.tap.label for r in ln.receivers], per_row=True)
+                 "V", [r.tap.label for r in ln.receivers], per_row=True,
+                 soft=[r.tap.pin.soft_v_ih for r in ln.receivers])
         vih_max = _reduce(np.max, [r.v_ih for r in ln.receivers])
         nmh = voh - vih_max
         f["noise_margin_high"] = np.min(nmh, axis=-1, keepdims=True)
@@ -246,14 +251,22 @@ def _sink_check(ctx, out: _Out, up: str, rows: list) -> BatchCheck:
         if sc is not None:
             return sc
     currents, iols = np.empty((2, ctx.n, len(rows)))  # variant × driver
+    soft = np.zeros((ctx.n, len(rows)), dtype=bool)
     for j, (i, d) in enumerate(rows):
         currents[:, j] = _worst_max(i)[:, 0]
         iols[:, j] = np.reshape(d.i_ol, -1) if np.ndim(d.i_ol) else d.i_ol
-    k = np.argmax(currents / iols, axis=1)[:, None]
+        soft[:, j] = np.reshape(d.tap.pin.soft_i_ol, -1)
+    ratio = currents / iols
+    k = np.argmax(ratio, axis=1)[:, None]
+    # a driver over a firm rating before one over a soft rating (batchresult._worst_cell)
+    firm_over = ~soft & ~(ratio <= 1.0 + AT_LIMIT)  # over it: a margin below 0
+    k = np.where(firm_over.any(axis=1, keepdims=True),
+                 np.argmax(np.where(firm_over, ratio, -np.inf), axis=1)[:, None], k)
     im = np.take_along_axis(currents, k, axis=1)
     i_ol = np.take_along_axis(iols, k, axis=1)
     sc = out.pick("sink-current", up, [le(im, i_ol)], ctx.warn, "A",
-                  [d.tap.label for _, d in rows])
+                  [d.tap.label for _, d in rows],
+                  soft=[np.take_along_axis(soft, k, axis=1)] if soft.any() else None)
 
     def rows_of():
         sc.row, sc.row_values = k[:, 0], currents
@@ -268,13 +281,22 @@ def _sink_check_one(ctx, out: _Out, up: str, rows: list) -> BatchCheck | None:
     iols = [one(d.i_ol) for _, d in rows]
     if not all(0.0 < x < math.inf for x in iols):
         return None
-    k = 0  # the first largest ratio, NaN counted as the largest (as numpy's argmax)
-    for j in range(1, len(rows)):
+    soft = [bool(np.ravel(d.tap.pin.soft_i_ol)[0]) for _, d in rows]
+    # a driver over a firm rating before one over a soft rating, as for many
+    over = [not soft[j] and not currents[j] / iols[j] <= 1.0 + AT_LIMIT
+            for j in range(len(rows))]
+    k = None  # the first largest ratio, NaN counted as the largest (as numpy's argmax)
+    for j in range(len(rows)):
+        if any(over) and not over[j]:
+            continue
+        if k is None:
+            k = j
+            continue
         r, best = currents[j] / iols[j], currents[k] / iols[k]
         if best == best and (r != r or r > best):
             k = j
     sc = out.pick("sink-current", up, [le(currents[k], iols[k])], ctx.warn, "A",
-                  [d.tap.label for _, d in rows])
+                  [d.tap.label for _, d in rows], soft=[soft[k]] if any(soft) else None)
 
     def rows_of():
         sc.row, sc.row_values = np.array([k]), np.array([currents])
@@ -350,11 +372,11 @@ def _timing_checks(ctx, s: _Seg, out: _Out, figs: dict) -> None:
     rows = [le(clock, lim.f_max)] + ([] if lim.f_min is None else [ge(clock, lim.f_min)])
     out.pick("scl-frequency", None, rows, 0.0, "Hz").basis = {
         "t_low": t_low, "t_high": t_high, "counted": counted}
-    slow = [(ctx.parts.timing(d).f_max, d.ref) for d in seg.devices
+    slow = [(ctx.parts.timing(d), d.ref) for d in seg.devices
             if not d.is_controller and not d.is_bridge and ctx.parts.timing(d).f_max is not None]
     if slow:
-        out.pick("device-speed", None, [le(clock, f) for f, _ in slow], 0.0,
-                 "Hz", [ref for _, ref in slow])
+        out.pick("device-speed", None, [le(clock, t.f_max) for t, _ in slow], 0.0,
+                 "Hz", [ref for _, ref in slow], soft=[t.soft_f_max for t, _ in slow])
     # -- SDA data setup
     tr_sda = figs["sda"]["rise_time"]
     def drives_sda(d, seg):  # its pin as the segment's SDA line holds it
@@ -375,18 +397,19 @@ def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
     """abs_max against the pull-up rail, supply ranges, power states."""
     v, warn, seg = s.v, ctx.warn, s.seg
     taps = [t for sig in SIGNALS for t in s.lines[sig].taps]
-    rows, warns, names = [], [], []
+    rows, warns, names, soft = [], [], [], []
     for t in taps:
         if t.pin.abs_max is None:
             continue
         names.append(t.label)
+        soft.append(t.pin.soft_abs_max)
         am = _corner(t.pin.abs_max, t, v, "min")
         rows.append(le(v, am))
         follows = np.logical_and(not t.own, t.pin.abs_follows)
         warns.append(np.where(follows, 0.0, warn))
     if rows:
-        out.pick("input-voltage", None, rows, warns, "V", names, per_row=True)
-    rows, seen, names, lows = [], set(), [], []
+        out.pick("input-voltage", None, rows, warns, "V", names, per_row=True, soft=soft)
+    rows, seen, names, lows, soft = [], set(), [], [], []
     for t in taps:
         if t.ref in seen:
             continue
@@ -400,8 +423,9 @@ def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
         names.append(t.label)
         lows.append(low_side)
         rows.append(given(m, np.where(low_side, lo, hi), np.where(low_side, s_min, s_max)))
+        soft.append(np.where(low_side, *t.timing.soft_supply))
     if rows:  # basis: per row, whether the rail's low end is the one nearer its limit
-        out.pick("supply-range", None, rows, 0.0, "V", names).basis = lows
+        out.pick("supply-range", None, rows, 0.0, "V", names, soft=soft).basis = lows
     # -- power states
     for d in seg.devices:
         if not d.switched:
@@ -441,7 +465,8 @@ def _bridge_checks(ctx, s: _Seg, out: _Out) -> None:
                   if r.tap.dev.ref != d.ref]
         if facing:
             out.pick("bridge-offset", None, [le(off, r.v_il) for r, _ in facing], warn, "V",
-                     [f"{r.tap.label} ({sig.upper()})" for r, sig in facing])
+                     [f"{r.tap.label} ({sig.upper()})" for r, sig in facing],
+                     soft=[r.tap.pin.soft_v_il for r, _ in facing])
     if offsets:
         out.truth("bridge-offset-facing", None, len(offsets) < 2)
 

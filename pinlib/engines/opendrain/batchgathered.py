@@ -20,25 +20,35 @@ from pinlib.engines.opendrain.batchinputs import (
     _Parts,
     _Receiver,
     _Tap,
+    rp_min_rests_on,
+    soft_flags,
 )
 from pinlib.engines.opendrain.inputs import LineInputs
 from pinlib.engines.opendrain.rules import abs_max_follows, part_is_mosfet
 from pinlib.model.design import Segment
 
 
-def _pin(t, driver: bool, receiver: bool) -> PinData:
+def _pin(t, driver, receiver) -> PinData:
     """What the checks read of a gathered pin beyond its line's sums (its capacitance,
-    leakage, pull-ups and levels are in the gathered line: None here)."""
+    leakage, pull-ups and levels are in the gathered line: None here); ``driver`` and
+    ``receiver`` its gathered driver and receiver (None where it is not one), whose
+    values taken decide the limits' softness."""
     pin = t.pin
+    taken = {}
+    if driver is not None:
+        taken.update(v_ol=driver.v_ol_value, i_ol=driver.i_ol_value)
+    if receiver is not None:
+        taken.update(v_il=receiver.v_il_value, v_ih=receiver.v_ih_value)
     return PinData(
-        name=t.pin_name, open_drain=pin.drive == "open-drain", driver=driver,
-        receiver=receiver, c_in=None, leakage=None, v_ol=None, i_ol=None, v_il=None,
+        name=t.pin_name, open_drain=pin.drive == "open-drain", driver=driver is not None,
+        receiver=receiver is not None, c_in=None, leakage=None, v_ol=None, i_ol=None, v_il=None,
         v_ih=None,
         abs_max=Level.of(pin.abs_max) if pin.abs_max is not None else None,
         abs_follows=abs_max_follows(pin) if pin.abs_max is not None else None,
         pullup=None, pullup_internal=None, off_tolerant=bool(pin.off_tolerant),
         t_of_min=float(pin.t_of_min.value) if pin.t_of_min is not None else None,
-        t_of_max=float(pin.t_of_max.value) if pin.t_of_max is not None else None)
+        t_of_max=float(pin.t_of_max.value) if pin.t_of_max is not None else None,
+        **soft_flags(pin, taken))
 
 
 def line_from(li: LineInputs, seg: Segment, parts: _Parts, scen: Scenario) -> _Line:
@@ -46,11 +56,11 @@ def line_from(li: LineInputs, seg: Segment, parts: _Parts, scen: Scenario) -> _L
 
     Rp(min) is the gathering's, with the current across pass transistors (the pull-ups
     are the design's as gathered, so the coupling is the gathering's)."""
-    drives = {id(d.tap) for d in li.drivers}
-    reads = {id(r.tap) for r in li.receivers}
+    drives = {id(d.tap): d for d in li.drivers}
+    reads = {id(r.tap): r for r in li.receivers}
     taps = {}
     for t in li.taps:
-        taps[id(t)] = _Tap(t.dev, t.dev.part, _pin(t, id(t) in drives, id(t) in reads),
+        taps[id(t)] = _Tap(t.dev, t.dev.part, _pin(t, drives.get(id(t)), reads.get(id(t))),
                            parts.timing(t.dev), t.vdd, t.own, part_is_mosfet(t.dev.part),
                            scen.tap_rail(t.vdd, seg))
     drivers = [_Driver(taps[id(d.tap)], d.v_ol[None, :], d.i_ol, d.r_sink[None, :],
@@ -59,4 +69,5 @@ def line_from(li: LineInputs, seg: Segment, parts: _Parts, scen: Scenario) -> _L
                  for r in li.receivers]
     return _Line(li.signal, list(taps.values()), li.cb, li.leakage, drivers, receivers,
                  li.r_parts, li.rp_min, li.rp_max, li.rise_factor, li.rp_leak, li.rp_fast,
-                 li.cb_low)
+                 li.cb_low,
+                 soft_min=bool(rp_min_rests_on(li, seg.supply * (1 + seg.supply_tolerance))))

@@ -97,6 +97,16 @@ class PinData:
     #: device on its own rail are taken at the pull-up rail (UM10204 rev. 6, table 11,
     #: note [1])
     spec_levels: tuple = (False, False)
+    #: whether the limits a check reads of the pin rest on a soft value (a class's
+    #: typical value, an estimate: :attr:`pinlib.library.values.Sourced.soft`): its
+    #: ``i_ol`` (sink-current), ``v_il`` and ``v_ih`` (v-ol, v-oh, bridge-offset),
+    #: ``abs_max`` (input-voltage) and ``v_ol`` with ``i_ol`` (Rp(min) of
+    #: pullup-window); False for the specification's own (published)
+    soft_i_ol: Any = False
+    soft_v_ol: Any = False
+    soft_v_il: Any = False
+    soft_v_ih: Any = False
+    soft_abs_max: Any = False
 
 
 @value_class
@@ -109,6 +119,10 @@ class TimingData:
     t_low: Any | None      # [s]
     t_high: Any | None     # [s]
     supply: tuple | None   # (min, max) [V] of the device's side
+    #: whether f_max (device-speed) and the supply range's (min, max) (supply-range)
+    #: rest on a soft value (:attr:`pinlib.library.values.Sourced.soft`)
+    soft_f_max: Any = False
+    soft_supply: tuple = (False, False)
 
 
 def _pin_data(pin, name: str, part: Part, dev: Device, lim: OpenDrainLimits,
@@ -141,7 +155,44 @@ def _pin_data(pin, name: str, part: Part, dev: Device, lim: OpenDrainLimits,
         t_of_min=float(pin.t_of_min.value) if pin.t_of_min is not None else None,
         t_of_max=float(pin.t_of_max.value) if pin.t_of_max is not None else None,
         spec_levels=(pin.v_il is None, pin.v_ih is None),
+        **soft_flags(pin, {"v_ol": d_vol, "i_ol": d_iol, "v_il": d_il, "v_ih": d_ih}),
     )
+
+
+def soft_flags(pin, taken: dict) -> dict:
+    """The ``soft_*`` fields of :class:`PinData` for a part's pin: whether each limit
+    the engine takes of it rests on a soft value: its own, else the specification's in
+    ``taken`` (by field; published, but UM10204's VOL1 where its table gives the mode
+    no point is an estimate), or ``taken``'s where it names the value taken. [1]"""
+    return {f"soft_{name}": _soft(getattr(pin, name) if getattr(pin, name) is not None
+                                  else taken.get(name))
+            for name in ("i_ol", "v_ol", "v_il", "v_ih", "abs_max")}
+
+
+def rp_min_rests_on(li, v_max: float) -> list:
+    """The soft values a gathered line's Rp(min) rests on (:class:`.inputs.LineInputs`,
+    its rail's maximum ``v_max``): the sink points (``v_ol``, ``i_ol``) of the drivers
+    whose bound it is (:func:`.rules.rp_min_of`, as the gathering's weakest sink), where
+    each of them is soft; empty where a firm one (a datasheet's, the specification's)
+    sets it too.  Across pass transistors, the gathering's weakest sink alone. [Sourced]"""
+    if li.coupled:
+        tying = [li.rp_min_driver] if li.rp_min_driver is not None else []
+    else:
+        bounds = [float(rp_min_of(v_max, float(d.v_ol[1]), d.i_ol)) for d in li.drivers]
+        best = max(bounds, default=0.0)
+        tying = [d for d, r in zip(li.drivers, bounds, strict=True) if best > 0 and r == best]
+    values = []
+    for d in tying:
+        soft = [x for x in (d.v_ol_value, d.i_ol_value) if _soft(x)]
+        if not soft:
+            return []
+        values += soft
+    return values
+
+
+def _soft(value) -> bool:
+    """:attr:`pinlib.library.values.Sourced.soft` of a value; False for none. [1]"""
+    return bool(value is not None and value.soft)
 
 
 def sda_valid_time(part: Part, lim: OpenDrainLimits) -> tuple[float, str]:
@@ -165,6 +216,8 @@ def _timing_data(part: Part, dev: Device, lim: OpenDrainLimits) -> TimingData:
         t_low=float(t.t_low.value) if t.t_low is not None else None,
         t_high=float(t.t_high.value) if t.t_high is not None else None,
         supply=(float(sup.min.value), float(sup.max.value)) if sup is not None else None,
+        soft_f_max=_soft(t.f_max),
+        soft_supply=(_soft(sup.min), _soft(sup.max)) if sup is not None else (False, False),
     )
 
 
@@ -391,6 +444,15 @@ class _Line:
     cb_low: Any = None     # Cb with every tolerance at its low end (the fastest rise's)
     pullup: Any = None     # the design resistor on this line
     r_eff: tuple | None = None  # (pullup, every pull-up in parallel) once worked out
+    #: whether Rp(min) rests on a soft sink point (the weakest sink's v_ol or i_ol, a
+    #: class's typical value or an estimate: PinData.soft_v_ol, soft_i_ol); a bool or a
+    #: batch column
+    soft_min: Any = False
+
+
+def _sink_soft(d) -> Any:
+    """Whether a driver's sink point (its v_ol or i_ol) rests on a soft value. [1]"""
+    return np.logical_or(d.tap.pin.soft_v_ol, d.tap.pin.soft_i_ol)
 
 
 @value_class
@@ -521,15 +583,20 @@ def _line(bus, seg, signal, function, v, parts, scen, lim, board) -> _Line:
                 contributors.append(scen.contributor(bus, seg, signal, len(contributors), value))
     r_parts = pu.parallel(*contributors) if contributors else math.inf
     v_max = v[:, -1:]
-    best = 0.0
-    for d in drivers:
-        best = np.maximum(best, rp_min_of(v_max, d.v_ol[:, -1:], d.i_ol))
+    best, soft = 0.0, False
+    for d in drivers:  # soft where every sink that sets it is (rp_min_rests_on)
+        r = rp_min_of(v_max, d.v_ol[:, -1:], d.i_ol)
+        soft = np.where(r > best, _sink_soft(d),
+                        np.where(r == best, np.logical_and(soft, _sink_soft(d)), soft))
+        best = np.maximum(best, r)
+    soft = np.logical_and(soft, np.asarray(best) > 0)
     rp_min = np.where(np.asarray(best) > 0, best, 1e-3)
     rise_factor = lim.rise_factor(v[:, :1])
     rp_max = rp_max_of(lim, rise_factor, cb)
     rp_leak = rp_leak_of(v, lim.v_nh_rel or 0.0, leak, [r.v_ih for r in receivers])
     return _Line(signal, taps, cb, leak, drivers, receivers, r_parts, rp_min, rp_max,
-                 rise_factor, rp_leak, rp_fast_of(lim, v, rise_factor, c_low), c_low)
+                 rise_factor, rp_leak, rp_fast_of(lim, v, rise_factor, c_low), c_low,
+                 soft_min=soft)
 
 
 def _choose(s: _Seg) -> None:
@@ -547,13 +614,16 @@ def _choose(s: _Seg) -> None:
 
 
 def _rp_min_coupled(s: _Seg, signal: str, segs: list[_Seg], links: list[_Link]):
-    """Rp(min) of a segment joined to others through pass transistors (the engine's)."""
+    """Rp(min) of a segment joined to others through pass transistors (the engine's);
+    sets the line's :attr:`_Line.soft_min` from the sink that bounds it."""
     far = [(link, segs[link.other].v[:, -1:], segs[link.other].r_lo(signal))
            for link in links if link.kind == "mosfet"]
-    best = np.asarray(1e-3)
-    for r, _, _ in coupled_sinks(s.v[:, -1:], s.lines[signal].drivers, far, segs, signal,
+    best, soft = np.asarray(1e-3), False
+    for r, d, _ in coupled_sinks(s.v[:, -1:], s.lines[signal].drivers, far, segs, signal,
                                  lambda x: x[:, -1:]):
+        soft = np.where(r > best, _sink_soft(d), soft)
         best = np.where(r > best, r, best)
+    s.lines[signal].soft_min = soft
     return best
 
 

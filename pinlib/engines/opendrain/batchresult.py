@@ -66,6 +66,11 @@ class BatchCheck:
         dict of ``t_low``, each row's tVD;DAT with its bridge delays (``t_vd``) and the
         SDA rise time ``t_r``; supply-range per row whether the rail's low end is the
         one nearer its limit. [unit]
+    soft : numpy.ndarray or None
+        Where the check's limits are parts' values, per variant whether the limit of
+        its worst row rests on a soft value (a class's typical value, an estimate:
+        :attr:`pinlib.library.values.Sourced.soft`): its status is then at most a
+        warning (:func:`pinlib.model.result.soft_limit` words it), shape ``(N,)``. [1]
     """
 
     id: str
@@ -84,6 +89,7 @@ class BatchCheck:
     by: Any = None
     by_names: Any = None
     basis: Any = None
+    soft: Any = None
 
     def worst(self, i: int = 0) -> tuple[str | None, int | None]:
         """What variant ``i``'s worst came from: the name of its row (None for a check
@@ -140,11 +146,12 @@ def given(margin, value, limit):
 class _Pending:
     """A check of :meth:`_Out.pick` whose worst is found in :meth:`_Out.finish`."""
 
-    __slots__ = ("chk", "r0", "r1", "k", "warn", "per_row", "single")
+    __slots__ = ("chk", "r0", "r1", "k", "warn", "per_row", "single", "soft")
 
-    def __init__(self, chk, r0, r1, k, warn, per_row, single):
+    def __init__(self, chk, r0, r1, k, warn, per_row, single, soft=None):
         self.chk, self.r0, self.r1, self.k = chk, r0, r1, k
         self.warn, self.per_row, self.single = warn, per_row, single
+        self.soft = soft
 
 
 def _corners(rows) -> int:
@@ -174,20 +181,29 @@ class _Out:
     def _n(self, x):
         return _column(np.asarray(x, dtype=float), self.n)
 
-    def pick(self, id, signal, rows, warn, unit, names=None, per_row=False) -> BatchCheck:
+    def pick(self, id, signal, rows, warn, unit, names=None, per_row=False,
+             soft=None) -> BatchCheck:
         """A check over ``rows`` (:func:`le`, :func:`ge`, :func:`given`, each of shape
         ``(N or 1, corners or 1)``) and a warning threshold (one, or one per row).  Its
         worst (row, corner) per variant is found in :meth:`finish`: the check keeps the
         row and the corner (:attr:`BatchCheck.row`, ``corner``) and ``names``, what each
         row is; with ``per_row``, each row's own worst margin too
-        (:attr:`BatchCheck.row_margins`).  Returns the check (filled by :meth:`finish`)."""
+        (:attr:`BatchCheck.row_margins`).  ``soft``, where the limits are parts' values:
+        per row whether its limit rests on a soft value (a bool, or a batch column of
+        them where the parts differ); a row that would fail against a soft limit warns
+        (:func:`pinlib.model.result.soft_limit`), and a row that fails against a firm one
+        is the check's worst before it (:func:`_worst_cell`).  Returns the check (filled
+        by :meth:`finish`)."""
         chk = BatchCheck(id, self.seg_id, signal, None, None, None, None, unit, names=names)
         self.checks.append(chk)
         k = _corners(rows) if self.n > 1 else 0  # at one variant: found in _finish_one
         r0 = len(self._rows)
         self._rows.extend(rows)
         single = len(rows) == 1 and k <= 1 and not isinstance(warn, (list, tuple))
-        self._pending.append(_Pending(chk, r0, len(self._rows), k, warn, per_row, single))
+        if soft is not None and not any(np.any(x) for x in soft):
+            soft = None  # every limit firm: the plain rule
+        self._pending.append(_Pending(chk, r0, len(self._rows), k, warn, per_row, single,
+                                      soft))
         return chk
 
     def after(self, fn) -> None:
@@ -296,7 +312,8 @@ def _finish_one(pending, rows) -> None:
         k = max([len(c) for cells in raw for c in cells])
         p.k, p.single = k, p.single and k == 1
         worst_of = []
-        best = None   # (key, margin, value, limit, row, corner) of the worst cell
+        best = None   # (firm, key, margin, value, limit, row, corner) of the worst cell
+        soft = None if p.soft is None else [bool(np.ravel(x)[0]) for x in p.soft]
         for j, (vs, ls, ss, gs) in enumerate(raw):
             if k > 1:
                 vs, ls, ss, gs = (c if len(c) == k else c * k for c in (vs, ls, ss, gs))
@@ -304,16 +321,22 @@ def _finish_one(pending, rows) -> None:
             for c in range(k):
                 x = _margin(vs[c], ls[c], ss[c], gs[c])
                 key = -math.inf if x != x else x
-                if row_best is None or key < row_best[0]:
-                    row_best = (key, x, vs[c], ls[c], j, c)
-            worst_of.append(row_best[1])
-            if best is None or row_best[0] < best[0]:
+                if row_best is None or key < row_best[1]:
+                    row_best = (1, key, x, vs[c], ls[c], j, c)
+            worst_of.append(row_best[2])
+            if soft is not None and not soft[j] and row_best[1] < 0:
+                row_best = (0,) + row_best[1:]  # a firm failure: before any other (_worst_cell)
+            if best is None or row_best[:2] < best[:2]:
                 best = row_best
-        _, m, v, lim, j, c = best
+        _, _, m, v, lim, j, c = best
         w = p.warn[j] if isinstance(p.warn, (list, tuple)) else p.warn
         w = w if type(w) is float else float(np.ravel(w)[0])
         nums += (m, v, lim)
-        codes.append(_status(m, w))
+        code = _status(m, w)
+        if soft is not None:
+            code = min(code, 1) if soft[j] else code
+            p.chk.soft = np.array([soft[j]])
+        codes.append(code)
         where += (j, c)
         if p.per_row:
             p.chk.row_margins = np.array([worst_of])
@@ -336,12 +359,16 @@ def _finish_many(p: _Pending, margin, value, limit, n: int) -> None:
     flat = mm.reshape(-1, n)
     ar = np.arange(n)
     chk = p.chk
+    soft = None
+    if p.soft is not None:  # each row's softness per variant, each cell's (row × corner)
+        soft = np.repeat(np.stack([np.broadcast_to(np.reshape(x, (-1,)), (n,))
+                                   for x in p.soft]), p.k, axis=0)
     if flat.shape[0] == 1:  # one cell a variant (most checks): it is the worst
         idx = np.zeros(n, dtype=np.intp)
         chk.margin, chk.value, chk.limit = (
             a[sl].reshape(-1, n)[0].copy() for a in (margin, value, limit))
     else:
-        idx = np.argmin(np.where(flat != flat, -np.inf, flat), axis=0)
+        idx = _worst_cell(flat, soft)
         chk.margin = flat[idx, ar]
         chk.value = value[sl].reshape(-1, n)[idx, ar]
         chk.limit = limit[sl].reshape(-1, n)[idx, ar]
@@ -353,11 +380,30 @@ def _finish_many(p: _Pending, margin, value, limit, n: int) -> None:
             w[:, j] = np.reshape(x, (-1,)) if np.ndim(x) else x
         warn = w[ar, row]
     chk.status = _column(status_codes(chk.margin, warn), n)
+    if soft is not None:  # a limit no datasheet stands behind: at most a warning
+        chk.soft = soft[idx, ar]
+        chk.status = np.where(chk.soft, np.minimum(chk.status, 1), chk.status).astype(np.int8)
     chk.row = None if p.single else row
     chk.corner = idx % p.k if p.k > 1 else None
     if p.per_row:  # each row at its own worst corner (NaN counted as the worst)
         at = np.argmin(np.where(mm != mm, -np.inf, mm), axis=1)[:, None]
         chk.row_margins = np.ascontiguousarray(np.take_along_axis(mm, at, axis=1)[:, 0].T)
+
+
+def _worst_cell(flat, soft):
+    """Per variant, the index of a check's worst cell among ``flat`` (cells × variants):
+    the smallest margin (NaN counted as the worst; the first of equal margins), except
+    that a cell failing against a firm limit (``soft`` False, cells × variants, or None
+    for every limit firm) comes before every cell that does not (a failure against a
+    datasheet limit is not hidden behind a larger one against a class's typical value,
+    which only warns: :func:`pinlib.model.result.soft_limit`). [1]"""
+    key = np.where(flat != flat, -np.inf, flat)
+    idx = np.argmin(key, axis=0)
+    if soft is None:
+        return idx
+    firm_fail = (key < 0) & ~soft
+    any_firm = firm_fail.any(axis=0)
+    return np.where(any_firm, np.argmin(np.where(firm_fail, key, np.inf), axis=0), idx)
 
 
 def _column(a: np.ndarray, n: int) -> np.ndarray:

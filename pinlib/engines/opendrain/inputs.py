@@ -119,6 +119,10 @@ class _Driver:
     r_series: float         # [Ω]
     source_i: str
     offset: float | None = None   # static low-offset level of a repeater side [V]
+    #: the values taken (the part's, else the specification's): their basis decides
+    #: whether a limit resting on them is soft (model.result.soft_limit)
+    v_ol_value: Sourced | None = None
+    i_ol_value: Sourced | None = None
 
 
 @value_class
@@ -129,6 +133,9 @@ class _Receiver:
     v_il: np.ndarray        # per corner [V]
     v_ih: np.ndarray        # per corner [V]
     source: str
+    #: the thresholds taken (the part's, else the specification's), as the driver's
+    v_il_value: Sourced | None = None
+    v_ih_value: Sourced | None = None
 
 
 @value_class
@@ -383,7 +390,7 @@ def _drivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
             if side.low_offset is not None:
                 offset = float(np.max(_corner_values(side.low_offset, t, v, vtol, "max")))
         drivers.append(_Driver(t, v_ol, i_ol, v_ol / i_ol, t.dev.series_resistor or 0.0, src,
-                               offset))
+                               offset, vol_s, iol_s))
     return drivers
 
 
@@ -442,7 +449,7 @@ def _receivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
         receivers.append(_Receiver(t, _corner_values(il, t, v, vtol, "min",
                                                      t.pin.v_il is None),
                                    _corner_values(ih, t, v, vtol, "max",
-                                                  t.pin.v_ih is None), src))
+                                                  t.pin.v_ih is None), src, il, ih))
     return receivers
 
 

@@ -22,7 +22,14 @@ from pinlib.engines.limits import OpenDrainLimits
 from pinlib.engines.readout import UNSTATED, explained
 from pinlib.library.schema import Pin
 from pinlib.model.design import Bus, Device, Segment
-from pinlib.model.result import Check, check_max, check_min, max_margin, min_margin
+from pinlib.model.result import (
+    Check,
+    check_max,
+    check_min,
+    max_margin,
+    min_margin,
+    soft_limit,
+)
 from pinlib.physics import pullup as pu
 from pinlib.physics import rc
 
@@ -308,12 +315,15 @@ def data_sources(index: int, ctrl_seg: int, segments: list[tuple[int, Segment]],
 
 
 def supply_range_check(who: str, lo: float, hi: float, s_min: float, s_max: float,
-                       source_of, *, ends: bool = True) -> Check:
+                       source_of, *, ends: bool = True, sourced=(None, None)) -> Check:
     """The ``supply-range`` check of one device, for every engine: the rail's ends ``lo``
     and ``hi`` against its part's supply range, at the end nearer its limit.  A datasheet
-    range is a hard limit: inside it passes, with no warning band.  ``source_of(low_side)``
-    names the limit's source; ``ends``: the message names the rail's end (False for one
-    board's rail, ``lo == hi``, whose corners the engine takes elsewhere). [V]"""
+    range is a hard limit: inside it passes, with no warning band; a range no datasheet
+    stands behind (``sourced``, the part's ``(min, max)`` values: a class's typical
+    range, an estimate) warns where it would fail (:func:`pinlib.model.result.
+    soft_limit`).  ``source_of(low_side)`` names the limit's source; ``ends``: the
+    message names the rail's end (False for one board's rail, ``lo == hi``, whose
+    corners the engine takes elsewhere). [V]"""
     lo, hi = float(at_limit(lo, s_min)), float(at_limit(hi, s_max))
     m, low_side = supply_margin(lo, hi, s_min, s_max)
     if bool(low_side):
@@ -328,7 +338,7 @@ def supply_range_check(who: str, lo: float, hi: float, s_min: float, s_max: floa
         chk.fix = ("give the device its own rail (supply = \"...\" on the device) or choose a "
                    "part for this rail")
         chk.message += f"; {chk.fix}"
-    return chk
+    return soft_limit(chk, sourced[0 if bool(low_side) else 1], what="supply range")
 
 
 def supply_range_text(who: str, low: bool, rail: float, s_min: float, s_max: float,

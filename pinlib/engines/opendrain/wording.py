@@ -15,11 +15,12 @@ import math
 from pinlib.core.labels import and_list, few_named
 from pinlib.engines.opendrain.arith import BY_PART, far_drivers
 from pinlib.engines.opendrain.batchfigures import one
+from pinlib.engines.opendrain.batchinputs import rp_min_rests_on
 from pinlib.engines.opendrain.bridges import overdrive
 from pinlib.engines.opendrain.explain import SINK_MODEL, window_advice
 from pinlib.engines.opendrain.inputs import LineInputs, SegmentInputs, _default, _f
 from pinlib.engines.opendrain.rules import _CORNERS, GATE_OVERDRIVE
-from pinlib.model.result import STATUSES, Check, Group
+from pinlib.model.result import STATUSES, Check, Group, soft_limit
 from pinlib.physics.pullup import rise_time_with_leakage
 
 
@@ -94,10 +95,27 @@ def _num(x) -> float | None:
 
 def make(bc, source: str, message: str, **kw) -> Check:
     """A result check with the batch check's numbers (a NaN or infinite value or limit
-    is None in the result)."""
+    is None in the result).  A check the batch held at a warning because its limit is
+    soft (:attr:`.batchresult.BatchCheck.soft`) is made failing, as its margin is:
+    :func:`firm_or_soft` words it a warning again, with the note and the fix."""
     margin = None if bc.margin is None else bc.margin.item(0)
-    return Check(bc.id, STATUSES[bc.status.item(0)], _num(bc.value), _num(bc.limit), bc.unit,
+    code = bc.status.item(0)
+    if code == 1 and bc.soft is not None and bool(bc.soft[0]) and not margin >= 0:
+        code = 2
+    return Check(bc.id, STATUSES[code], _num(bc.value), _num(bc.limit), bc.unit,
                  margin, source, message, **kw)
+
+
+def firm_or_soft(chk: Check, bc, *values, what: str) -> Check:
+    """:func:`pinlib.model.result.soft_limit` of a worded check against ``values``, the
+    part's values its limit rests on (None for the specification's): the status is then
+    the batch's again (a RuntimeError where not: the batch and the wording took the
+    limit's basis from different values, a bug in pinlib)."""
+    soft_limit(chk, *values, what=what)
+    if STATUSES.index(chk.status) != bc.status.item(0):
+        raise RuntimeError(f"open-drain wording of {chk.id} {chk.subject}: status "
+                           f"{chk.status}, the batch's {STATUSES[bc.status.item(0)]}")
+    return chk
 
 
 def _failed(chk: Check, fix: str, sep: str = "; ") -> None:
@@ -307,7 +325,10 @@ def _window(w: Words, ln: LineInputs, r_eff: float, rp_lo: float) -> Check:
                    f"against the window {window}", subject=up, details=details)
     if chk.status == "fail":
         _failed(chk, window_advice(lim, seg_in, ln, m_lo, m_hi))
-    return chk
+    # at its lower end the window rests on the weakest sink's point (Rp(min), eq. 2)
+    low = m_lo <= m_hi or not math.isfinite(ln.rp_max)  # the batch's end
+    values = rp_min_rests_on(ln, float(seg_in.vdd[1])) if low else []
+    return firm_or_soft(chk, bc, *values, what="sink point (v_ol at i_ol)")
 
 
 def _v_ol(w: Words, ln: LineInputs, far: list) -> None:
@@ -332,7 +353,7 @@ def _v_ol(w: Words, ln: LineInputs, far: list) -> None:
         _failed(chk, f"receivers {few_named(failing)} read the low level as high: a larger "
                      "pull-up, a stronger sink, smaller series resistors"
                      + ("" if far else ", or a translator"))
-    w.grp.add(chk)
+    w.grp.add(firm_or_soft(chk, bc, r.v_il_value, what="VIL"))
     _noise_margin(w, up, "low", "lowest VIL − low level", lim.v_nl_rel)
 
 
@@ -414,7 +435,7 @@ def _sink(w: Words, ln: LineInputs, far: list) -> None:
     elif chk.status == "fail":
         _failed(chk, f"raise the effective pull-up to at least "
                      f"{_f(ln.rp_min / (1 - tol), 'Ω')} (Rp(min) at −{_f(tol, '%')})")
-    w.grp.add(chk)
+    w.grp.add(firm_or_soft(chk, bc, d.i_ol_value, what="IOL"))
 
 
 def _v_oh(w: Words, ln: LineInputs, rp_hi: float) -> None:
@@ -439,7 +460,7 @@ def _v_oh(w: Words, ln: LineInputs, rp_hi: float) -> None:
         _failed(chk, f"{few_named(failing)} cannot read the pull-up rail as high: pull up to "
                      "a rail they accept, put a level translator between, or lower the pull-up "
                      f"(leakage drop){': ' + fix if fix else ''}")
-    w.grp.add(chk)
+    w.grp.add(firm_or_soft(chk, bc, r.v_ih_value, what="VIH"))
     _noise_margin(w, up, "high", "high level − highest VIH", lim.v_nh_rel, ln, rp_hi)
 
 

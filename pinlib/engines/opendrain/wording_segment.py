@@ -28,7 +28,14 @@ from pinlib.engines.opendrain.rules import (
     SIGNALS,
     supply_range_text,
 )
-from pinlib.engines.opendrain.wording import Words, held_high, line, make, row_corner
+from pinlib.engines.opendrain.wording import (
+    Words,
+    firm_or_soft,
+    held_high,
+    line,
+    make,
+    row_corner,
+)
 from pinlib.model.result import Group, check_true
 
 #: The units of the segment's own figures (the lines' are in ``explain._UNITS``).
@@ -183,9 +190,10 @@ def _timing(w: Words, sb) -> None:
         w.take("device-speed")
         k, _ = row_corner(bc)
         d = next(d for d in seg_in.segment.devices if d.ref == bc.names[k])
-        grp.add(make(bc, value_source(d, "timing.f_max", d.part.timing.f_max),
-                     f"clock {_f(clock, 'Hz')} against the slowest device {d.ref}'s "
-                     f"rated {_f(bc.limit[0], 'Hz')}", subject=d.ref))
+        chk = make(bc, value_source(d, "timing.f_max", d.part.timing.f_max),
+                   f"clock {_f(clock, 'Hz')} against the slowest device {d.ref}'s "
+                   f"rated {_f(bc.limit[0], 'Hz')}", subject=d.ref)
+        grp.add(firm_or_soft(chk, bc, d.part.timing.f_max, what="f_max"))
     bc = w.peek("setup-time")
     if bc is None:
         f = grp.figures.get("sda_setup_margin")
@@ -242,7 +250,7 @@ def _domains(w: Words, taps: list) -> None:
                        f"{_f(seg_in.segment.supply, 'V')} rail, or pull this segment up to "
                        f"{_f(rails[0], 'V')} if every device on it accepts that rail")
             chk.message += f"; {chk.fix}"
-        grp.add(chk)
+        grp.add(firm_or_soft(chk, bc, t.pin.abs_max, what="abs_max"))
     bc = w.peek("supply-range")
     if bc is not None:
         w.take("supply-range")
@@ -258,7 +266,7 @@ def _domains(w: Words, taps: list) -> None:
             chk.fix = ("give the device its own rail (supply = \"...\" on the device) or choose "
                        "a part for this rail")
             chk.message += f"; {chk.fix}"
-        grp.add(chk)
+        grp.add(firm_or_soft(chk, bc, sup.min if low else sup.max, what="supply range"))
 
 
 def _power(w: Words, taps: list) -> None:
@@ -383,4 +391,4 @@ def _offset(w: Words, d) -> None:
                    "replace those with VIL below it, or turn the repeater so its offset "
                    "side faces devices with VIL = 0.3·VDD at a higher rail")
         chk.message += f"; {chk.fix}"
-    w.grp.add(chk)
+    w.grp.add(firm_or_soft(chk, bc, r.v_il_value, what="VIL"))

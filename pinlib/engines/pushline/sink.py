@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from pinlib.engines.pushline.analysis import LineAnalysis, _fmt
 from pinlib.engines.pushline.pins import Endpoint
-from pinlib.model.result import Check, check_max
+from pinlib.model.result import Check, check_max, soft_limit
 from pinlib.physics.pullup.levels import sink_current, sink_resistance
 
 
@@ -90,7 +90,8 @@ def _check(a: LineAnalysis, d: Endpoint, rp: float, rail: float, v_ol: float,
                f"their tolerance, or use a driver rated to sink at least {_fmt(need, 'A')} "
                f"at {_fmt(v_ol, 'V')}: its part states its low level ({_fmt(v_ol, 'V')}) "
                f"only up to {_fmt(i_ol, 'A')}, and level-low relies on it")
-    return check_max(
+    # a rating no datasheet stands behind (a class's typical one) warns where it would fail
+    return soft_limit(check_max(
         "sink-current", current, i_ol, "A", d.source("i_ol"),
         f"{a.signal} sink current {_fmt(current, 'A')} into {d.label} (pull-up "
         f"{_fmt(rp, 'Ω')} to {_fmt(rail, 'V')}{through}) against its rating "
@@ -98,4 +99,4 @@ def _check(a: LineAnalysis, d: Endpoint, rp: float, rail: float, v_ol: float,
         warn_margin=warn,
         subject=d.ref, fix=fix,
         details={"pullup": rp, "rail": rail, "series_resistor": a.rs,
-                 "r_sink": r_sink})
+                 "r_sink": r_sink}), d.pin.i_ol, what="IOL")

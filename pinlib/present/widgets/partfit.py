@@ -11,15 +11,20 @@ rules, not a second rule:
 * ``supply-range``: the rail at its two tolerance corners (the engine's
   ``WorstCase.rails``) against the part's supply range
   (:func:`pinlib.engines.opendrain.rules.supply_margin`).
+
+Where the part's value is soft (a class's typical value, an estimate:
+:func:`pinlib.model.result.soft_basis`) the engine's check only warns
+(:func:`pinlib.model.result.soft_limit`), and so does the offer ("warns here").
 """
 
 from __future__ import annotations
 
+from pinlib.core import messages as M
 from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
 from pinlib.engines.limits import limits_for
 from pinlib.engines.opendrain.rules import supply_margin
-from pinlib.model.result import max_margin
+from pinlib.model.result import max_margin, soft_basis
 
 
 @value_class(frozen=True)
@@ -34,11 +39,15 @@ class Unfit:
         A few words for the part's option in the list ("up to 100 kHz").
     reason : str
         The sentence for the line under the list.
+    soft : str or None
+        The basis of the part's value where it is soft (``"generic"``, ``"estimate"``):
+        the engine's check then warns rather than fails; None for a firm one.
     """
 
     check: str
     short: str
     reason: str
+    soft: str | None = None
 
 
 def unfit_on_bus(part, *, protocol: str, mode: str, supply: float, tolerance: float,
@@ -68,7 +77,7 @@ def unfit_on_bus(part, *, protocol: str, mode: str, supply: float, tolerance: fl
         if float(max_margin(f_clock, f)) < 0:
             out.append(Unfit("device-speed", f"up to {format_si(f, 'Hz')}",
                              f"it is rated up to {format_si(f, 'Hz')}; the bus runs at "
-                             f"{format_si(f_clock, 'Hz')}"))
+                             f"{format_si(f_clock, 'Hz')}", soft_basis(f_max)))
     sup = part.supply_for(None)
     if sup is not None:
         s_min, s_max = float(sup.min.value), float(sup.max.value)
@@ -79,15 +88,23 @@ def unfit_on_bus(part, *, protocol: str, mode: str, supply: float, tolerance: fl
             end = (f"down to {format_si(lo, 'V')}" if bool(low_side)
                    else f"up to {format_si(hi, 'V')}")
             out.append(Unfit("supply-range", f"supply {rng}",
-                             f"its supply range is {rng}; the rail runs {end}"))
+                             f"its supply range is {rng}; the rail runs {end}",
+                             soft_basis(sup.min if bool(low_side) else sup.max)))
     return out
 
 
+def _firm(unfit: list[Unfit]) -> bool:
+    """Whether any of ``unfit`` is against a firm limit (the engine's check fails)."""
+    return any(u.soft is None for u in unfit)
+
+
 def unfit_label(label: str, unfit: list[Unfit]) -> str:
-    """A part's option with what it would fail ("… — fails here: up to 100 kHz")."""
+    """A part's option with what it would fail ("… — fails here: up to 100 kHz"), or
+    warn where every such limit is soft ("… — warns here: ...")."""
     if not unfit:
         return label
-    return f"{label} — fails here: " + "; ".join(u.short for u in unfit)
+    return (f"{label} — {'fails' if _firm(unfit) else 'warns'} here: "
+            + "; ".join(u.short for u in unfit))
 
 
 def unfit_sentence(pid: str, unfit: list[Unfit]) -> str:
@@ -95,5 +112,8 @@ def unfit_sentence(pid: str, unfit: list[Unfit]) -> str:
     if not unfit:
         return ""
     checks = ", ".join(u.check for u in unfit)
+    if not _firm(unfit):
+        return (M.UNFIT_SOFT.format(part=pid, checks=checks)
+                + "; ".join(u.reason for u in unfit) + ".")
     return (f"If added, {pid} would fail this bus ({checks}): "
             + "; ".join(u.reason for u in unfit) + ".")
