@@ -59,11 +59,13 @@ _FOLLOWING_FIGURES = {"max_clock_limited_by": "max_clock"}
 
 def rank_margin(check) -> float:
     """The margin a check is ranked by across corners: its margin, ``-inf`` for a
-    failing check without a finite one (a yes/no check that fails, a NaN margin), 0 for
-    a passing yes/no check. [1]"""
+    failing check without a finite one (a yes/no check that fails, a NaN margin) and for
+    one without a value that does not pass (no time at all, a warning where its limit
+    is soft: :func:`pinlib.model.result.soften`), 0 for a passing yes/no check. [1]"""
     m = check.margin
     if m is None or isinstance(m, bool):
-        return -math.inf if check.status == "fail" else 0.0
+        beyond = check.status == "fail" or (check.value is None and check.status != "pass")
+        return -math.inf if beyond else 0.0
     m = float(m)
     return -math.inf if math.isnan(m) else m
 
