@@ -850,6 +850,19 @@ def _(env):
     return _implausible(env).message
 
 
+@case("CANDIDATE_WARN_BEYOND")
+def _(env):
+    # an SPI bus at 120 MHz on the built-in classes (invented): every flash candidate is
+    # beyond an f_max or a timing requirement typical of its class
+    from pinlib.studies.candidates import rank_candidates
+    from tests.test_soft_limits import DESIGN
+
+    (env.tmp / "team").mkdir()
+    path = env.write("d.toml", DESIGN.replace("CTRL", "mcu-3v3").replace(
+        "FLASH", "nor-flash-spi"))
+    return rank_candidates(load_design(path), "U2").format_text(width=None)
+
+
 @case("STATUS_SET_ELSEWHERE", M.STATUS_SET_ELSEWHERE.format(
     status="WARN", check="sensors sensor-1v8 Translator gate drive", ref="U4"))
 def _(env):

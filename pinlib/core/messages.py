@@ -573,6 +573,11 @@ FLIGHTS_HEAD = ("flights: from the driver's timing reference (its output at 50 %
 WORST_YES_NO = "a yes/no check, which has no margin, sets the status"
 STATUS_SET_ELSEWHERE = ("† {status} set by {check}: a check no part at {ref} can move "
                         "(pinlib check shows it)")
+# Under a candidate ranking where a shown part warns at a negative margin
+CANDIDATE_WARN_BEYOND = ("WARN at a negative margin: beyond a limit that is a class's "
+                         "typical value, an estimate or a rule of thumb, which warns "
+                         "(pinlib check says which); record the datasheet's values to "
+                         "make it firm")
 #: A note on an I2C/SMBus line: pins whose stated sink guarantees less current at the
 #: specification's VOL than the specification asks of every device.
 SINK_BELOW_SPEC = ("sink rated below the specification's {rule} ({source}): the pull-up "

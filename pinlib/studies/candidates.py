@@ -347,6 +347,10 @@ class Ranking:
                 why = reason.removeprefix("none: ").removeprefix("none, ")
                 note = f"— {label}: {why} ({_listed(parts)})"
                 lines += [note] if width is None else wrap(note, width, subsequent="  ")
+            if any(c.status == "warn" and c.worst_margin is not None
+                   and c.worst_margin < 0 for c in shown):
+                lines += wrap(M.CANDIDATE_WARN_BEYOND, width, subsequent="  ") \
+                    if width is not None else [M.CANDIDATE_WARN_BEYOND]
             for note in self.status_notes(shown):
                 lines += [note] if width is None else wrap(note, width, subsequent="  ")
         for n in self.notes:
