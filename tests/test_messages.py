@@ -3636,13 +3636,13 @@ def _(env):
         part, protocol="i2c", mode="fast-plus", supply=3.3, tolerance=0.05, clock=1e6))
 
 
-@case("SOFT_LIMIT_GENERIC", M.SOFT_LIMIT_GENERIC.format(what="f_max"))
+@case("SOFT_LIMIT_GENERIC", M.SOFT_LIMIT_GENERIC.format(what="f_max", whose="the part's"))
 def _(env):
     # the built-in adc-spi's f_max, 20 MHz, is typical of its class, at a 25 MHz clock
     return _message_of(env, _spi("SPI_FAST"), "f-max", "U3")
 
 
-@case("SOFT_LIMIT_ESTIMATE", M.SOFT_LIMIT_ESTIMATE.format(what="f_max"))
+@case("SOFT_LIMIT_ESTIMATE", M.SOFT_LIMIT_ESTIMATE.format(what="f_max", whose="the part's"))
 def _(env):
     # the same f_max recorded as an estimate (invented test data)
     (env.tmp / "team").mkdir(parents=True, exist_ok=True)

@@ -805,6 +805,8 @@ def test_spi_budget_shows_a_mode_the_display_does_not_take(budget):
     # the row shows the mode against the part's modes, and a note under the mode says it
     assert ">mode 1<" in budget.checks_html.value and ">modes 0, 3<" in budget.checks_html.value
     assert "SPI mode 1 is not one of U12" in budget.mode_note.value
+    # the note's word is the check's status (it read FAIL beside a warning)
+    assert "<b>WARN</b>" in budget.mode_note.value and "FAIL" not in budget.mode_note.value
     budget.set(clock=10e6, spi_mode=3)
     assert all(c.status == "pass" for c in budget.bus_result.checks if c.id == "spi-mode")
     assert budget.mode_note.value == ""

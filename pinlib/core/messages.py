@@ -573,7 +573,8 @@ FLIGHTS_HEAD = ("flights: from the driver's timing reference (its output at 50 %
 WORST_YES_NO = "a yes/no check, which has no margin, sets the status"
 STATUS_SET_ELSEWHERE = ("† {status} set by {check}: a check no part at {ref} can move "
                         "(pinlib check shows it)")
-# Under a candidate ranking where a shown part warns at a negative margin
+# Under a candidate ranking (or the corners' table) where a row warns at a negative
+# margin
 CANDIDATE_WARN_BEYOND = ("WARN at a negative margin: beyond a limit that is a class's "
                          "typical value, an estimate or a rule of thumb, which warns "
                          "(pinlib check says which); record the datasheet's values to "
@@ -672,10 +673,10 @@ EDGE_TIME_FIX = ("lower the bus clock to {clock} or less, where this check passe
 # A check whose limit is a class's typical value or an estimate, where it would fail
 # (model.result.soften): appended to its message
 SOFT_LIMIT_GENERIC = (" (the limit is a value typical of the part's class, not its "
-                      "datasheet's: a warning, not a failure; recording the part's {what} "
+                      "datasheet's: a warning, not a failure; recording {whose} {what} "
                       "makes it firm)")
 SOFT_LIMIT_ESTIMATE = (" (the limit is an estimate, not a datasheet's: a warning, not a "
-                       "failure; recording the part's {what} makes it firm)")
+                       "failure; recording {whose} {what} makes it firm)")
 LEVEL_HIGH_FIX = ("a receiver whose VIH is at most {v_ih}, or a driver whose VOH is at least "
                   "{v_oh}, where this check passes")
 # ...where no driver on its rail could give that VOH (it lies above the driver's supply)

@@ -372,26 +372,29 @@ def soft_basis(*values) -> str | None:
     return "generic" if "generic" in bases else ("estimate" if bases else None)
 
 
-def soft_limit(check: Check, *values, what: str = "value") -> Check:
+def soft_limit(check: Check, *values, what: str = "value", owner: str | None = None) -> Check:
     """``check`` against a limit that rests on ``values`` (as :func:`soft_basis`): where
     any of them is soft (no datasheet, measurement or standard behind it) the check warns
     where it would fail, as a rule of thumb does (a check fails only against a published
     or datasheet limit or a physical impossibility); :func:`soften`."""
-    return soften(check, soft_basis(*values), what=what)
+    return soften(check, soft_basis(*values), what=what, owner=owner)
 
 
-def soften(check: Check, basis: str | None, *, what: str = "value") -> Check:
+def soften(check: Check, basis: str | None, *, what: str = "value",
+           owner: str | None = None) -> Check:
     """``check`` against a limit of soft ``basis`` (``"generic"``, ``"estimate"``; None:
     a firm limit, the check unchanged).  Its margin and numbers are unchanged;
     ``details["limit_basis"]`` names the basis, and a failing check warns and says why
-    and what recording makes it firm (``what``: the value, e.g. ``"VIH"``); its fix, the
-    change to the design that would pass it, is the caller's."""
+    and what recording makes it firm (``what``: the value, e.g. ``"VIH"``; ``owner``: the
+    device whose value it is, where it is not the check's subject); its fix, the change
+    to the design that would pass it, is the caller's."""
     if basis is None:
         return check
     check.details = {**check.details, "limit_basis": basis}
     if check.status == "fail":
         check.status = "warn"
-        check.message += SOFT_LIMIT_NOTE[basis].format(what=what)
+        whose = f"{owner}'s" if owner else "the part's"
+        check.message += SOFT_LIMIT_NOTE[basis].format(what=what, whose=whose)
     return check
 
 

@@ -90,12 +90,12 @@ def _against(c: Check) -> str:
 #: Beside a limit that a check beyond it only warns against: no datasheet stands behind
 #: it (:func:`pinlib.model.result.soften`, by its basis), or it is a rule of thumb
 #: (:func:`pinlib.model.result.rule_of_thumb`).
-SOFT_TAGS = {"generic": " (typical of its class)", "estimate": " (an estimate)",
+SOFT_TAGS = {"generic": " (a class's typical value)", "estimate": " (an estimate)",
              "rule": " (a rule of thumb)"}
 
 
 #: The same after a check's reason, where it has no value and limit to stand beside.
-REASON_TAGS = {"generic": "; a warning, the limit being typical of its class",
+REASON_TAGS = {"generic": "; a warning, the limit being a class's typical value",
                "estimate": "; a warning, the limit being an estimate",
                "rule": "; a warning, the limit being a rule of thumb"}
 

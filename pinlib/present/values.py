@@ -165,9 +165,10 @@ def counts(result: DesignResult) -> dict[str, int]:
 
 def soft_words(n: dict) -> str:
     """After a count of warnings (of :func:`counts`): how many are beyond a limit no
-    datasheet states (``" (3 beyond a limit no datasheet states)"``), else nothing."""
+    datasheet states (``" (3 beyond a class's typical or an estimated limit)"``), else
+    nothing."""
     soft = n.get("soft", 0)
-    return f" ({soft} beyond a limit no datasheet states)" if soft else ""
+    return f" ({soft} beyond a class's typical or an estimated limit)" if soft else ""
 
 
 def warns_beyond(c) -> str | None:

@@ -197,15 +197,32 @@ def _sourced_text(device: Device, name: str) -> str:
 
 def _soft_values(device: Device) -> dict:
     """The soft basis (:func:`pinlib.model.result.soft_basis`) of each of a device's
-    timing values that no datasheet or standard stands behind, by name, and of its SPI
-    inputs' thresholds (``"levels"``)."""
+    timing values that no datasheet or standard stands behind, by name."""
     timing = device.part.timing
     got = {n: soft_basis(getattr(timing, n, None)) for n in _TIMING_NAMES}
-    # and its SPI inputs' thresholds, which a signal that never switches fails on
-    got["levels"] = soft_basis(*(getattr(pin, n) for pin in device.part.pins.values()
-                                 if (pin.function or "").startswith("spi-")
-                                 and pin.drive == "input" for n in ("v_ih", "v_il")))
     return {n: b for n, b in got.items() if b is not None}
+
+
+def _level_state(lines: dict, ref: str, signals) -> str | None:
+    """How firm the thresholds are that a signal received at ``ref`` may never cross,
+    for a timing term with no time at all: its lines' failing ``level-high`` and
+    ``level-low`` checks at that receiver say it (a signal that never crosses VIH has a
+    high level below it).  ``"firm"`` where any of them fails against a firm limit, else
+    the soft basis of those that would fail (``details["limit_basis"]``), else None
+    (no level short of its threshold: an edge too slow to arrive, which is
+    physical)."""
+    states = set()
+    for sig in signals:
+        la = lines.get(sig)
+        if la is None:
+            continue
+        for c in la.result.checks:
+            if (c.id in ("level-high", "level-low") and c.margin is not None
+                    and c.margin < 0 and (c.subject or "").split(" ")[0] == ref):
+                states.add(c.details.get("limit_basis") or "firm")
+    if "firm" in states:
+        return "firm"
+    return "generic" if "generic" in states else ("estimate" if states else None)
 
 
 #: The timing values a budget term or clock limit takes from a part.
@@ -333,7 +350,8 @@ def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
                                _timing_value(controller, "t_cs_setup"),
                                None if ct.f_max is None else float(ct.f_max.at()), c_sources,
                                t_cs_lag=_timing_value(controller, "t_cs_hold"),
-                               soft=_soft_values(controller))
+                               soft={**_soft_values(controller), "levels": _level_state(
+                                   lines, controller.ref, ("cipo",))})
     for name in ("t_valid", "t_setup", "t_hold"):
         if getattr(ct, name) is None:
             notes.append(f"{controller.ref} ({controller.part_id}) records no {name}: taken as 0")
@@ -376,7 +394,8 @@ def spi_analysis(bus: Bus, design: Design) -> SpiAnalysis:
                                               "t_low")},
             t_cs_valid=t_cs_valid, t_cs_hold=_timing_value(p, "t_cs_hold"),
             t_high=_timing_value(p, "t_high"), t_low=_timing_value(p, "t_low"),
-            soft=_soft_values(p)))
+            soft={**_soft_values(p), "levels": _level_state(lines, p.ref,
+                                                            ("sclk", "copi", "cs"))}))
     unpulsed = [p.ref for p in periph_t if p.t_high is None and p.t_low is None]
     if unpulsed:
         notes.append(f"SCLK high and low pulses not checked at {and_list(unpulsed)}: no "

@@ -50,7 +50,8 @@ class PeripheralTiming:
         Source text of each timing value, by name. [1]
     soft : dict
         The soft basis (:func:`pinlib.model.result.soft_basis`) of each timing value no
-        datasheet or standard stands behind, by name. [1]
+        datasheet or standard stands behind, by name, and under ``"levels"`` how firm
+        the thresholds its inputs may never cross are (``analysis._level_state``). [1]
     """
 
     ref: str
@@ -142,6 +143,9 @@ class Term:
         The same of the input thresholds its signals switch at, where a signal that never
         crosses one leaves no time at all (its check fails on those thresholds, not on
         the requirement). [1]
+    owner : str or None
+        The device whose requirement it is, where not :attr:`subject` (the controller's
+        CIPO setup and hold). [1]
     """
 
     id: str
@@ -155,6 +159,7 @@ class Term:
     assumed: str | None = None
     soft: str | None = None
     levels_soft: str | None = None
+    owner: str | None = None
 
     @property
     def margin_unit(self) -> str | None:
@@ -242,10 +247,15 @@ class Term:
         return " and ".join(never) or "a signal"
 
 
-def softer(a: str | None, b: str | None) -> str | None:
-    """The softer of two soft bases (:func:`pinlib.model.result.soft_basis`): a class's
-    typical value before an estimate, either before none."""
-    return "generic" if "generic" in (a, b) else (a or b)
+def _levels(*states) -> str | None:
+    """A term's :attr:`Term.levels_soft` from the level states of the receivers it
+    involves (``analysis._level_state``: ``"firm"``, a soft basis or None): firm (None)
+    where any is firm, else the softest basis (a class's typical value before an
+    estimate), else None."""
+    if "firm" in states:
+        return None
+    return "generic" if "generic" in states else ("estimate" if "estimate" in states
+                                                  else None)
 
 
 def _or0(x):
@@ -305,8 +315,8 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
     for p in peripherals:
         # the thresholds its inputs (and, for CIPO, the controller's) switch at: where a
         # signal never crosses one, that is what its term fails on
-        lv_p = p.soft.get("levels")
-        lv_c = softer(lv_p, controller.soft.get("levels"))
+        lv_p = _levels(p.soft.get("levels"))
+        lv_c = _levels(p.soft.get("levels"), controller.soft.get("levels"))
         s_sample = p.sclk[mode.sample_edge]
         s_launch = p.sclk[mode.launch_edge]
         s_first = p.sclk[mode.first_edge]
@@ -354,7 +364,7 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                  "cipo_late": p.cipo.late, "bridges_round_trip": t_path,
                  "t_setup_controller": _or0(controller.t_setup)},
                 controller.t_setup is not None, soft=controller.soft.get("t_setup"),
-                levels_soft=lv_c))
+                levels_soft=lv_c, owner=controller.ref))
         if p.cipo is not None:
             # SCLK is the controller's and CIPO the peripheral's: each at the corner of
             # its own driver that makes it earliest
@@ -365,7 +375,7 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                 {"half_period": "T/2", "sclk_early": sclk_early,
                  "cipo_early": cipo_early, "t_hold_controller": _or0(controller.t_hold)},
                 controller.t_hold is not None, soft=controller.soft.get("t_hold"),
-                levels_soft=lv_c))
+                levels_soft=lv_c, owner=controller.ref))
         if p.cs is not None:
             # a controller that records no CS lead (lag) is taken to give half a period
             # (modes.CS_LEAD_SOURCE, CS_LAG_SOURCE): the checks that rest on it warn only
@@ -412,5 +422,5 @@ def budget_terms(mode: SpiMode, controller: ControllerTiming,
                      "cipo_late": p.cipo.late, "bridges_round_trip": t_path,
                      "t_setup_controller": _or0(controller.t_setup)},
                     controller.t_setup is not None, lead_assumed,
-                    soft=controller.soft.get("t_setup"), levels_soft=lv_c))
+                    soft=controller.soft.get("t_setup"), levels_soft=lv_c, owner=controller.ref))
     return terms

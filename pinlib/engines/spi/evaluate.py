@@ -249,7 +249,7 @@ def term_check(t: Term, clock: float, warn: float, mode: int) -> Check:
                             subject=t.subject, details=details, reason=reason,
                             fix="make the driver's high level reach the receiver's VIH (a "
                                 "level translator, or parts on one rail)"),
-                      t.levels_soft, what="VIH and VIL")
+                      t.levels_soft, what="VIH and VIL", owner=t.owner)
     message = (head + body.format(avail=_fmt(avail, "s"), req=_fmt(t.required, "s"))
                + f" at {_fmt(clock, 'Hz')}")
     if t.margin_unit is None:
@@ -280,7 +280,8 @@ def term_check(t: Term, clock: float, warn: float, mode: int) -> Check:
                                                      what=CS_ASSUMED[t.assumed][0])
         chk.fix = assumed_fix if chk.fix is None else f"{chk.fix}; {assumed_fix}"
     # a requirement no datasheet or standard stands behind: no failure either (Term.codes)
-    return soften(chk, t.soft, what=_SOFT_WHAT.get(t.id, "timing value"))
+    return soften(chk, t.soft, what=_SOFT_WHAT.get(t.id, "timing value"),
+                  owner=t.owner)
 
 
 #: The value a term's requirement is, for the fix of a soft one (:func:`soften`).

@@ -10,7 +10,9 @@ from pinlib.present.review.draw import _slug
 from pinlib.present.values import check_cells, counts, with_fix
 
 _MARK = {"pass": "PASS", "warn": "WARN", "fail": "FAIL"}
-_STATUS_WORD = {"pass": "passes", "warn": "passes with a margin under the warning threshold",
+_STATUS_WORD = {"pass": "passes",
+                "warn": "warns (a margin under the warning threshold, or beyond a limit that "
+                        "only warns: a class's typical value, an estimate, a rule of thumb)",
                 "fail": "fails"}
 
 

@@ -10,6 +10,7 @@ from dataclasses import field
 
 import numpy as np
 
+from pinlib.core import messages as M
 from pinlib.core.labels import plural_s, sampled_check_label
 from pinlib.core.progress import progress_bar
 from pinlib.core.protocols import PUSH_PULL_PROTOCOLS
@@ -140,6 +141,9 @@ class CornersResult:
                              f"at{NBSP}{corner}")
             if len(shown) < len(rows):
                 lines.append(f"    … {len(rows) - len(shown)} more (JSON lists every check)")
+            if any(c.status == "warn" and c.margin is not None and c.margin_unit is None
+                   and c.margin < 0 for c in shown):
+                lines.append("  " + M.CANDIDATE_WARN_BEYOND)
         fixed = len(self.checks) - len(rows)
         if fixed:
             lines.append(f"  {fixed} checks depend on no toleranced parameter")
