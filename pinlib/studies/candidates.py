@@ -205,10 +205,16 @@ class Candidate:
     margins: tuple = ()
 
     def sort_key(self):
-        # status first; then the margins smallest first, compared in turn (a tie on the
-        # worst margin — a clock at the slowest device's maximum, say — is broken by the
-        # next worst); then the id
-        return (_RANK[self.status], tuple(-m for m in self.margins), self.part)
+        # status first; then the worst margin shown (that of the worst check of that
+        # status: a failing check's, not a larger one of a check that only warns, such
+        # as one beyond a class's typical value); then the margins smallest first,
+        # compared in turn (a tie on the worst margin — a clock at the slowest device's
+        # maximum, say — is broken by the next worst); then the id.  A worst without a
+        # fraction (a yes/no check, a margin in a unit) is not ranked by it.
+        wm = self.worst_margin
+        fraction = wm is not None and not (self.worst_check or {}).get("margin_unit")
+        shown = -wm if fraction and wm == wm else -math.inf
+        return (_RANK[self.status], shown, tuple(-m for m in self.margins), self.part)
 
     def margin_text(self, decimals: int = 1) -> str:
         """The worst margin as people read it: ``+4.0 %``, or in its own unit where it
