@@ -802,6 +802,9 @@ def test_spi_budget_shows_a_mode_the_display_does_not_take(budget):
     assert mode["U12"].details["limit_basis"] == "generic"
     assert "SPI mode 1 is not one of U12" in budget.checks_html.value
     assert "WARN" in budget.status_html.value.upper()
+    # and the status line counts it among the warnings beyond a class's typical limit
+    assert "beyond a class&#x27;s typical or an estimated limit" in budget.status_html.value \
+        or "beyond a class's typical or an estimated limit" in budget.status_html.value
     # the row shows the mode against the part's modes, and a note under the mode says it
     assert ">mode 1<" in budget.checks_html.value and ">modes 0, 3<" in budget.checks_html.value
     assert "SPI mode 1 is not one of U12" in budget.mode_note.value
