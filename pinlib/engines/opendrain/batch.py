@@ -219,8 +219,8 @@ def _in_domain(ctx, ln: _Line, v, rp_lo, rp_hi, far) -> bool:
     at_least_0 = [v, ln.cb, ln.leakage]
     above_0 = [rp_lo, rp_hi, ln.rise_factor, v_hi - v_lo, f_start - f_lo]
     for d in ln.drivers:
-        at_least_0 += [d.r_sink, d.r_series]
-        above_0 += [d.v_ol, d.i_ol]
+        at_least_0 += [d.r_sink, d.r_sink_low, d.r_series]
+        above_0 += [d.v_ol, d.v_ol_low, d.i_ol]
     for d, link, _, _ in far_drivers(far, ctx.segs, ln.signal):  # their fall bounds
         at_least_0.append(d.r_series + link.r_on)
         above_0 += [d.v_ol, d.i_ol]

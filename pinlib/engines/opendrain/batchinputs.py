@@ -178,7 +178,7 @@ def rp_min_rests_on(li, v_max: float) -> list:
     if li.coupled:
         tying = [li.rp_min_driver] if li.rp_min_driver is not None else []
     else:
-        bounds = [float(rp_min_of(v_max, float(d.v_ol[1]), d.i_ol)) for d in li.drivers]
+        bounds = [float(rp_min_of(v_max, float(d.v_ol_low[1]), d.i_ol)) for d in li.drivers]
         best = max(bounds, default=0.0)
         tying = [d for d, r in zip(li.drivers, bounds, strict=True) if best > 0 and r == best]
     values = []
@@ -413,6 +413,14 @@ class _Driver:
     r_sink: Any            # v_ol / i_ol [Ω]
     r_series: Any
     offset: Any = None
+    #: v_ol at the low end of the device's own rail (``v_ol`` on the pull-up rail): the
+    #: sink's smallest resistance, for sink-current and Rp(min) (.inputs._Driver)
+    v_ol_low: Any = None
+
+    @property
+    def r_sink_low(self):
+        """``v_ol_low / i_ol``: the sink's smallest effective resistance. [Ω]"""
+        return self.v_ol_low / self.i_ol
 
 
 @value_class
@@ -563,7 +571,8 @@ def _line(bus, seg, signal, function, v, parts, scen, lim, board) -> _Line:
     for t in taps:
         if not t.pin.driver:
             continue
-        v_ol = _corner(t.pin.v_ol, t, v, "max")
+        v_ol = _corner(t.pin.v_ol, t, v, "max")  # the worst for the low level and the fall
+        v_ol_low = _corner(t.pin.v_ol, t, v, "min")  # for the current and Rp(min)
         i_ol = t.pin.i_ol
         offset = None
         if t.part is not None and t.dev.side is not None and _offset_side(t.dev) == t.dev.side:
@@ -572,7 +581,7 @@ def _line(bus, seg, signal, function, v, parts, scen, lim, board) -> _Line:
                 offset = np.max(_corner(Level.of(side.low_offset), t, v, "max"), axis=1,
                                 keepdims=True)
         drivers.append(_Driver(t, v_ol, i_ol, v_ol / i_ol,
-                               scen.series(bus, seg, t.dev, signal), offset))
+                               scen.series(bus, seg, t.dev, signal), offset, v_ol_low))
     receivers = [_Receiver(t, _corner(t.pin.v_il, t, v, "min", t.pin.spec_levels[0]),
                            _corner(t.pin.v_ih, t, v, "max", t.pin.spec_levels[1]))
                  for t in taps if t.pin.receiver]
@@ -585,7 +594,7 @@ def _line(bus, seg, signal, function, v, parts, scen, lim, board) -> _Line:
     v_max = v[:, -1:]
     best, soft = 0.0, False
     for d in drivers:  # soft where every sink that sets it is (rp_min_rests_on)
-        r = rp_min_of(v_max, d.v_ol[:, -1:], d.i_ol)
+        r = rp_min_of(v_max, d.v_ol_low[:, -1:], d.i_ol)
         soft = np.where(r > best, _sink_soft(d),
                         np.where(r == best, np.logical_and(soft, _sink_soft(d)), soft))
         best = np.maximum(best, r)

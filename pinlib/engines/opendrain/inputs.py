@@ -123,6 +123,15 @@ class _Driver:
     #: whether a limit resting on them is soft (model.result.soft_limit)
     v_ol_value: Sourced | None = None
     i_ol_value: Sourced | None = None
+    #: the low level at ``i_ol`` at the low end of the device's own rail, per corner (the
+    #: same as ``v_ol`` for a device on the pull-up rail): the sink's smallest resistance,
+    #: which draws the most current (sink-current) and sets Rp(min) (UM10204 eq. 2) [V]
+    v_ol_low: np.ndarray | None = None
+
+    @property
+    def r_sink_low(self):
+        """The sink's smallest effective resistance ``v_ol_low / i_ol``, per corner. [Ω]"""
+        return self.v_ol_low / self.i_ol
 
 
 @value_class
@@ -355,8 +364,8 @@ def _refuse_below_ground(v_ol: np.ndarray, value: Sourced, tap: _Tap, v: np.ndar
         return
     ends = _rail_ends(tap, v, vtol)
     vals = np.asarray(value.at(ends), dtype=float)
-    # where the value was taken: the lowest rail corner, or the own rail's end it used
-    at = float(ends[int(np.argmax(vals) if tap.own else np.argmin(vals))])
+    # where the value was taken: the lowest rail corner, or the own rail's lowest level
+    at = float(ends[int(np.argmin(vals))])
     err = DesignError(M.LEVEL_BELOW_GROUND, field="v_ol", value=value.text,
                       expected=M.LEVEL_BELOW_GROUND_EXPECTED.format(
                           level=format_si(worst, "V"), vdd=format_si(at, "V")))
@@ -378,8 +387,12 @@ def _drivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
         if t.pin.v_ol is None or t.pin.i_ol is None:
             _default(seg_in, f"no sink point (v_ol, i_ol) stated: taken at the specification's "
                              f"{rule} ({lim.source_sink})", f"{t.label} {up}")
+        # the low level at the end of its own rail that hurts each check: the highest
+        # for the bus's low level and the fall, the lowest for the current it draws and
+        # Rp(min)
         v_ol = _corner_values(vol_s, t, v, vtol, "max")
-        _refuse_below_ground(v_ol, vol_s, t, v, vtol)
+        v_ol_low = _corner_values(vol_s, t, v, vtol, "min")
+        _refuse_below_ground(v_ol_low, vol_s, t, v, vtol)
         i_ol = float(iol_s.value)
         if lim.protocol == "i2c" and t.pin.v_ol is not None and t.pin.i_ol is not None:
             _below_spec_sink(seg_in, t, i_ol, d_vol, d_iol, rule, lim, up)
@@ -390,7 +403,7 @@ def _drivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
             if side.low_offset is not None:
                 offset = float(np.max(_corner_values(side.low_offset, t, v, vtol, "max")))
         drivers.append(_Driver(t, v_ol, i_ol, v_ol / i_ol, t.dev.series_resistor or 0.0, src,
-                               offset, vol_s, iol_s))
+                               offset, vol_s, iol_s, v_ol_low))
     return drivers
 
 
@@ -476,7 +489,7 @@ def _weakest_sink(drivers: list[_Driver], v_max: float) -> tuple[float, _Driver 
     no driver bounds Rp from below); all drivers in one array. [Ω]"""
     if not drivers:
         return 1e-3, None
-    r = rp_min_of(v_max, np.array([float(d.v_ol[1]) for d in drivers]),
+    r = rp_min_of(v_max, np.array([float(d.v_ol_low[1]) for d in drivers]),
                   np.array([d.i_ol for d in drivers]))
     k = int(np.argmax(r))
     return (float(r[k]), drivers[k]) if r[k] > 0 else (1e-3, None)

@@ -423,10 +423,12 @@ def _sink(w: Words, ln: LineInputs, far: list) -> None:
     order = sorted(range(len(currents)),
                    key=lambda j: -(currents[j] / ln.drivers[bc.basis[j]].i_ol))
     extra = " and the far side's pull-up through the translator" if far else ""
+    # a driver on its own rail draws the most at that rail's minimum (its smallest VOL)
+    own = f", its own {_f(d.tap.vdd, 'V')} rail at its minimum" if d.tap.own else ""
     chk = make(bc, d.source_i,
                f"{up} sink current {_f(bc.value[0], 'A')} (pull-up at −{_f(tol, '%')}, rail at its "
-               f"maximum{extra}) against {d.tap.label}'s rating {_f(d.i_ol, 'A')} at "
-               f"{_f(float(d.v_ol[1]), 'V')}", subject=f"{up} {d.tap.label}",
+               f"maximum{extra}{own}) against {d.tap.label}'s rating {_f(d.i_ol, 'A')} at "
+               f"{_f(float(d.v_ol_low[1]), 'V')}", subject=f"{up} {d.tap.label}",
                details={"drivers": {ln.drivers[bc.basis[j]].tap.label: currents[j]
                                     for j in order}})
     if chk.status == "fail" and not math.isfinite(ln.rp_min):
