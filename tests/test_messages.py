@@ -1017,6 +1017,58 @@ def _(env):
     return " ".join(check_design(d).buses[0].notes)
 
 
+@case("SINK_OWN_RAIL_LOW", M.SINK_OWN_RAIL_LOW.format(vdd="1.8 V"))
+def _(env):
+    # a 1.8 V controller on its own rail on a 5 V SMBus (tests/test_own_rail_sink.py)
+    from test_own_rail_sink import DESIGN
+
+    from pinlib.engines.dispatch import check_design
+    d = load_design(env.write("d.toml", DESIGN))
+    return " ".join(c.message for c in check_design(d).buses[0].checks)
+
+
+@case("WINDOW_BELOW_FIRM", M.WINDOW_BELOW_FIRM.format(limit="306 Ω", driver="U2",
+                                                      basis="datasheet"))
+def _(env):
+    # derived: (3.465 V − 0.4 V) / 10 mA = 306.5 Ω, UM10204 rev. 6 §7.1 eq. 2, of an
+    # invented datasheet sink (tests/test_soft_limits_od.py)
+    from test_soft_limits_od import _mixed_sinks
+
+    from pinlib.engines.dispatch import check_design
+    d = _mixed_sinks(env.tmp, "270 Ω")
+    return " ".join(c.message for c in check_design(d).buses[0].checks)
+
+
+def _setup_of(env, basis):
+    # rtc-i2c's class tVD;DAT 900 ns on a 1 MHz Fast-mode Plus bus (invented), or a team
+    # part's own of ``basis`` (tests/test_soft_limits_od.py)
+    from test_soft_limits_od import check_of, i2c_design, team_part
+
+    part = "rtc-i2c"
+    if basis:
+        part = "rtc-x"
+        team_part(env.tmp / "team", part, "rtc-i2c", "clock", basis,
+                  '[timing]\nt_vd_dat = { value = "900 ns", source = "invented sheet" }\n')
+    return check_of(i2c_design(env.tmp, part, clock="1 MHz"), "setup-time", "SDA U2").message
+
+
+@case("SETUP_SOFT_VALID", M.SETUP_SOFT_VALID.format(
+    which="tVD;DAT", value="900 ns", field="t_vd_dat",
+    kind=M.SETUP_SOFT_GENERIC.format(ref="U2")))
+def _(env):
+    return _setup_of(env, None)
+
+
+@case("SETUP_SOFT_GENERIC", M.SETUP_SOFT_GENERIC.format(ref="U2"))
+def _(env):
+    return _setup_of(env, None)
+
+
+@case("SETUP_SOFT_ESTIMATE", M.SETUP_SOFT_ESTIMATE.format(ref="U2"))
+def _(env):
+    return _setup_of(env, "estimate")
+
+
 def _swapped_corners(env):
     from pinlib.library.plausible import part_warnings
 

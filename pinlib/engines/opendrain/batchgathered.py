@@ -70,4 +70,5 @@ def line_from(li: LineInputs, seg: Segment, parts: _Parts, scen: Scenario) -> _L
     return _Line(li.signal, list(taps.values()), li.cb, li.leakage, drivers, receivers,
                  li.r_parts, li.rp_min, li.rp_max, li.rise_factor, li.rp_leak, li.rp_fast,
                  li.cb_low,
-                 soft_min=bool(rp_min_rests_on(li, seg.supply * (1 + seg.supply_tolerance))))
+                 soft_min=bool(rp_min_rests_on(li, seg.supply * (1 + seg.supply_tolerance))),
+                 rp_min_firm=li.rp_min_firm[0])
