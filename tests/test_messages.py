@@ -3688,6 +3688,32 @@ def _(env):
         part, protocol="i2c", mode="fast-plus", supply=3.3, tolerance=0.05, clock=1e6))
 
 
+def _legacy_unfit(env) -> str:
+    # the built-in io-expander-legacy-5v on a 1 MHz Fast-mode Plus bus at 3.3 V ± 5 %: its
+    # f_max 100 kHz is published (device-speed fails), its 4.5-5.5 V supply range typical
+    # of its class (supply-range only warns)
+    from pinlib.library.loader import load_library as load
+    from pinlib.present.widgets.partfit import unfit_label, unfit_on_bus, unfit_sentence
+
+    part = load([], env=False).get("io-expander-legacy-5v")
+    unfit = unfit_on_bus(part, protocol="i2c", mode="fast-plus", supply=3.3, tolerance=0.05)
+    label = unfit_label("io-expander-legacy-5v", unfit)
+    assert label.endswith("fails here: up to 100 kHz; warns: supply 4.5 V–5.5 V"), label
+    return unfit_sentence("io-expander-legacy-5v", unfit)
+
+
+@case("UNFIT_FIRM", M.UNFIT_FIRM.format(part="io-expander-legacy-5v", checks="device-speed"))
+def _(env):
+    return _legacy_unfit(env)
+
+
+@case("UNFIT_ALSO_WARN", M.UNFIT_ALSO_WARN.format(checks="supply-range"))
+def _(env):
+    text = _legacy_unfit(env)
+    assert text.index("device-speed") < text.index("it would only warn on supply-range")
+    return text
+
+
 @case("SOFT_LIMIT_GENERIC", M.SOFT_LIMIT_GENERIC.format(what="f_max"))
 def _(env):
     # the built-in adc-spi's f_max, 20 MHz, is typical of its class, at a 25 MHz clock

@@ -808,6 +808,11 @@ TOO_FEW_BINS = "too few bins"
 # would pass only past a value typical of its class or an estimate (the checks warn)
 UNFIT_SOFT = ("If added, {part} would warn on this bus ({checks}, against values typical "
               "of its class or estimated, not its datasheet's): ")
+# ...: one it would fail (a firm limit crossed), and, where it is past soft ones too,
+# which of its checks would only warn
+UNFIT_FIRM = "If added, {part} would fail this bus ({checks}): "
+UNFIT_ALSO_WARN = ("; it would only warn on {checks} (against values typical of its class "
+                   "or estimated, not its datasheet's): ")
 NOT_A_LISTED_VALUE = "not a value of the {what}"
 UNKNOWN_SETTING = "unknown setting"
 OUTSIDE_CONTROL_RANGE = "outside the control's range"
