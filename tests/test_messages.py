@@ -1017,6 +1017,58 @@ def _(env):
     return " ".join(check_design(d).buses[0].notes)
 
 
+@case("SINK_OWN_RAIL_LOW", M.SINK_OWN_RAIL_LOW.format(vdd="1.8 V"))
+def _(env):
+    # a 1.8 V controller on its own rail on a 5 V SMBus (tests/test_own_rail_sink.py)
+    from test_own_rail_sink import DESIGN
+
+    from pinlib.engines.dispatch import check_design
+    d = load_design(env.write("d.toml", DESIGN))
+    return " ".join(c.message for c in check_design(d).buses[0].checks)
+
+
+@case("WINDOW_BELOW_FIRM", M.WINDOW_BELOW_FIRM.format(limit="306 Ω", driver="U2",
+                                                      basis="datasheet"))
+def _(env):
+    # derived: (3.465 V − 0.4 V) / 10 mA = 306.5 Ω, UM10204 rev. 6 §7.1 eq. 2, of an
+    # invented datasheet sink (tests/test_soft_limits_od.py)
+    from test_soft_limits_od import _mixed_sinks
+
+    from pinlib.engines.dispatch import check_design
+    d = _mixed_sinks(env.tmp, "270 Ω")
+    return " ".join(c.message for c in check_design(d).buses[0].checks)
+
+
+def _setup_of(env, basis):
+    # rtc-i2c's class tVD;DAT 900 ns on a 1 MHz Fast-mode Plus bus (invented), or a team
+    # part's own of ``basis`` (tests/test_soft_limits_od.py)
+    from test_soft_limits_od import check_of, i2c_design, team_part
+
+    part = "rtc-i2c"
+    if basis:
+        part = "rtc-x"
+        team_part(env.tmp / "team", part, "rtc-i2c", "clock", basis,
+                  '[timing]\nt_vd_dat = { value = "900 ns", source = "invented sheet" }\n')
+    return check_of(i2c_design(env.tmp, part, clock="1 MHz"), "setup-time", "SDA U2").message
+
+
+@case("SETUP_SOFT_VALID", M.SETUP_SOFT_VALID.format(
+    which="tVD;DAT", value="900 ns", field="t_vd_dat",
+    kind=M.SETUP_SOFT_GENERIC.format(ref="U2")))
+def _(env):
+    return _setup_of(env, None)
+
+
+@case("SETUP_SOFT_GENERIC", M.SETUP_SOFT_GENERIC.format(ref="U2"))
+def _(env):
+    return _setup_of(env, None)
+
+
+@case("SETUP_SOFT_ESTIMATE", M.SETUP_SOFT_ESTIMATE.format(ref="U2"))
+def _(env):
+    return _setup_of(env, "estimate")
+
+
 def _swapped_corners(env):
     from pinlib.library.plausible import part_warnings
 
@@ -3634,6 +3686,32 @@ def _(env):
     part = load([], env=False).get("eeprom-i2c")
     return unfit_sentence("eeprom-i2c", unfit_on_bus(
         part, protocol="i2c", mode="fast-plus", supply=3.3, tolerance=0.05, clock=1e6))
+
+
+def _legacy_unfit(env) -> str:
+    # the built-in io-expander-legacy-5v on a 1 MHz Fast-mode Plus bus at 3.3 V ± 5 %: its
+    # f_max 100 kHz is published (device-speed fails), its 4.5-5.5 V supply range typical
+    # of its class (supply-range only warns)
+    from pinlib.library.loader import load_library as load
+    from pinlib.present.widgets.partfit import unfit_label, unfit_on_bus, unfit_sentence
+
+    part = load([], env=False).get("io-expander-legacy-5v")
+    unfit = unfit_on_bus(part, protocol="i2c", mode="fast-plus", supply=3.3, tolerance=0.05)
+    label = unfit_label("io-expander-legacy-5v", unfit)
+    assert label.endswith("fails here: up to 100 kHz; warns: supply 4.5 V–5.5 V"), label
+    return unfit_sentence("io-expander-legacy-5v", unfit)
+
+
+@case("UNFIT_FIRM", M.UNFIT_FIRM.format(part="io-expander-legacy-5v", checks="device-speed"))
+def _(env):
+    return _legacy_unfit(env)
+
+
+@case("UNFIT_ALSO_WARN", M.UNFIT_ALSO_WARN.format(checks="supply-range"))
+def _(env):
+    text = _legacy_unfit(env)
+    assert text.index("device-speed") < text.index("it would only warn on supply-range")
+    return text
 
 
 @case("SOFT_LIMIT_GENERIC", M.SOFT_LIMIT_GENERIC.format(what="f_max", whose="the part's"))

@@ -389,3 +389,94 @@ def test_the_standards_own_sink_point_is_firm_but_where_it_gives_none(tmp_path, 
     assert win.details["rp_min"] == pytest.approx(rp_min, rel=1e-9)
     d = load_design(tmp_path / "od.toml", library_folders=[TEST_PARTS])
     assert_same_ranking(cand.rank_candidates(d, "U2"), cand.rank_candidates_slow(d, "U2"))
+
+
+RTC_SINK = """[pins.sda]
+v_ol = { value = "0.4 V", basis = "datasheet", source = "invented sheet, table 6" }
+i_ol = { value = "10 mA", basis = "datasheet", source = "invented sheet, table 6" }
+[pins.scl]
+v_ol = { value = "0.4 V", basis = "datasheet", source = "invented sheet, table 6" }
+i_ol = { value = "10 mA", basis = "datasheet", source = "invented sheet, table 6" }
+"""  # invented test data: a sink stronger than the controller class's
+
+
+def _mixed_sinks(tmp_path, pullup: str):
+    team_part(tmp_path / "team", "rtc-ds", "rtc-i2c", "clock", "datasheet", RTC_SINK)
+    path = tmp_path / "mix.toml"
+    path.write_text(HEAD + f"""
+[[bus]]
+id = "i2c"
+protocol = "i2c"
+mode = "fast-plus"
+supply = "3.3 V"
+supply_tolerance = "5 %"
+pullup = "{pullup}"
+trace = {{ length = "10 cm", capacitance = "1 pF/cm" }}
+devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
+  {{ ref = "U2", part = "rtc-ds" }},
+]
+""", encoding="utf-8")
+    return load_design(path, library_folders=_team(tmp_path))
+
+
+@pytest.mark.parametrize("pullup, want", [("270 Ω", "fail"), ("330 Ω", "warn")])
+def test_pullup_window_fails_below_a_firm_rp_min_though_the_largest_is_soft(
+        tmp_path, pullup, want):
+    # derived: UM10204 rev. 6 §7.1 eq. 2 at 3.465 V (3.3 V + 5 %): mcu-3v3's class sink
+    # (0.4 V at 8 mA, typical of its class) gives Rp(min) 383 Ω, soft; rtc-ds's datasheet
+    # sink (0.4 V at 10 mA, invented) 306.5 Ω, firm.  270 Ω at −1 % (267 Ω) is below
+    # both: it fails against the firm bound; 330 Ω (327 Ω) is below the soft one only
+    soft_min, firm_min = (3.465 - 0.4) / 8e-3, (3.465 - 0.4) / 10e-3
+    d = _mixed_sinks(tmp_path, pullup)
+    win = check_of(d, "pullup-window", "SDA")
+    assert win.details["rp_min"] == pytest.approx(soft_min, rel=1e-9)
+    assert win.status == want
+    if want == "fail":
+        assert win.limit == pytest.approx(firm_min, rel=1e-9)
+        assert win.margin == pytest.approx(270 * 0.99 / firm_min - 1, rel=1e-9)
+        assert "limit_basis" not in win.details
+        assert win.details["rp_min_firm_driver"] == "U2"
+        assert "rtc-ds pins.sda.i_ol" in win.source and "datasheet" in win.source
+        assert "(datasheet), a firm limit" in win.message
+    else:
+        assert win.limit == pytest.approx(soft_min, rel=1e-9)
+        assert win.details["limit_basis"] == "generic"
+    # the corners and the candidates at U2 (rtc-i2c's class sink beside rtc-ds) agree
+    cr = whatif.corners(d)
+    got = cr.find("i2c", "pullup-window", "SDA")
+    assert got.status == want and got.margin == pytest.approx(win.margin, rel=1e-9)
+    ranking = cand.rank_candidates(d, "U2")
+    assert_same_ranking(ranking, cand.rank_candidates_slow(d, "U2"))
+    res = evaluate_bus(d.with_parts({"U2": "rtc-i2c"}).buses[0], d.with_parts({"U2": "rtc-i2c"}))
+    assert check_of_result(res, "pullup-window", "SDA").status == "warn"
+
+
+def check_of_result(res, id: str, subject: str):
+    return next(c for c in res.checks if c.id == id and c.subject == subject)
+
+
+@pytest.mark.parametrize("basis", [None, "estimate", "datasheet"])
+def test_setup_time_names_where_its_data_valid_time_came_from(tmp_path, basis):
+    # rtc-i2c's tVD;DAT is its class's 900 ns (UM10204 rev. 6, table 10 gives 0.9 µs in
+    # Fast-mode; published) on a Fast-mode Plus bus, whose tLOW (0.5 µs) it exceeds: the
+    # check fails against the specification's tSU;DAT (firm), its source and message
+    # naming the part's value and its basis rather than the specification's tVD;DAT
+    part = "rtc-i2c"
+    if basis:
+        part = f"rtc-{basis}"
+        team_part(tmp_path / "team", part, "rtc-i2c", "clock", basis,
+                  '[timing]\nt_vd_dat = { value = "900 ns", source = "invented sheet" }\n')
+    d = i2c_design(tmp_path, part, clock="1 MHz")
+    chk = check_of(d, "setup-time", "SDA U2")
+    assert chk.status == "fail" and chk.margin < 0
+    assert "limit_basis" not in (chk.details or {})
+    assert f"tVD;DAT {part} timing.t_vd_dat" in chk.source
+    assert "table 10 (tVD;DAT)" not in chk.source  # not the specification's own
+    if basis == "datasheet":
+        assert not (chk.details or {}).get("value_basis")
+        assert "recording the part's t_vd_dat" not in chk.message
+    else:
+        assert chk.details["value_basis"] == (basis or "generic")
+        kind = "an estimate for U2" if basis else "a value typical of U2's class"
+        assert f"tVD;DAT 900 ns is {kind}" in chk.message

@@ -670,6 +670,19 @@ SWING_FIX_NO_SERIES = ("a shorter line and stubs, or a driver with slower edges 
 EDGE_TIME_FIX = ("lower the bus clock to {clock} or less, where this check passes, or "
                  "speed the edge (a stronger driver, less load)")
 # pinlib/engines/pushline/sichecks.py: a driver's level against a receiver's threshold
+# pinlib/engines/opendrain/wording.py: the sink current of a driver on its own rail is
+# taken at that rail's minimum (its smallest VOL/IOL draws the most)
+SINK_OWN_RAIL_LOW = ", its own {vdd} rail at its minimum"
+# ...: a pull-up below the largest Rp(min) of a firm sink point where the window's Rp(min)
+# rests on a soft one: it fails against the firm bound
+WINDOW_BELOW_FIRM = ("; below {limit}, Rp(min) of {driver}'s sink point ({basis}), a firm "
+                     "limit")
+# pinlib/engines/opendrain/wording_segment.py: setup-time where the data valid time taken
+# is a part's soft value (its limit, tSU;DAT, is the specification's: the check stays firm)
+SETUP_SOFT_VALID = ("; {which} {value} is {kind} (the limit is firm: the specification's "
+                    "tSU;DAT); recording the part's {field} makes the number its own")
+SETUP_SOFT_GENERIC = "a value typical of {ref}'s class"
+SETUP_SOFT_ESTIMATE = "an estimate for {ref}"
 # A check whose limit is a class's typical value or an estimate, where it would fail
 # (model.result.soften): appended to its message
 SOFT_LIMIT_GENERIC = (" (the limit is a value typical of the part's class, not its "
@@ -796,6 +809,11 @@ TOO_FEW_BINS = "too few bins"
 # would pass only past a value typical of its class or an estimate (the checks warn)
 UNFIT_SOFT = ("If added, {part} would warn on this bus ({checks}, against values typical "
               "of its class or estimated, not its datasheet's): ")
+# ...: one it would fail (a firm limit crossed), and, where it is past soft ones too,
+# which of its checks would only warn
+UNFIT_FIRM = "If added, {part} would fail this bus ({checks}): "
+UNFIT_ALSO_WARN = ("; it would only warn on {checks} (against values typical of its class "
+                   "or estimated, not its datasheet's): ")
 NOT_A_LISTED_VALUE = "not a value of the {what}"
 UNKNOWN_SETTING = "unknown setting"
 OUTSIDE_CONTROL_RANGE = "outside the control's range"

@@ -38,8 +38,13 @@ def low_levels(v, rp_lo, drivers, far, segs, signal: str, phys=pu) -> tuple[list
         ``(v_bus, i, driver)`` of a repeater side's static-offset low. [V], [A]
     plain : list
         Per entry of ``levels``, its level with the sink read as a resistance through
-        its datasheet point whatever the current (at or below the level it guarantees):
-        the most the pull-up can draw, for its power. [V]
+        its datasheet point whatever the current (at or below the level it guarantees),
+        at the low end of a driver's own rail: the most the pull-up can draw, for its
+        power. [V]
+
+    A driver on its own rail has its low level (``v_ol``, ``r_sink``) at the top of that
+    rail and its current (``v_ol_low``, ``r_sink_low``) at the bottom: each the worst
+    for the checks that read it.
     """
     levels, offset_levels, plain = [], [], []
     for d in drivers:
@@ -47,11 +52,18 @@ def low_levels(v, rp_lo, drivers, far, segs, signal: str, phys=pu) -> tuple[list
             vb = np.broadcast_to(d.offset, np.broadcast_shapes(np.shape(d.offset), np.shape(v)))
             offset_levels.append((vb, (v - vb) / rp_lo, d))
             continue
+        # a driver on its own rail: its level at the top of that rail (the highest low
+        # level), its current at the bottom (the sink's smallest resistance draws the
+        # most); on the pull-up rail the two are one
+        low_end = d.tap.own
         if not far:
             vb = np.asarray(phys.low_level(v, rp_lo, d.r_sink, d.r_series), dtype=float)
-            i = np.asarray(phys.sink_current(v, rp_lo, d.r_sink, d.r_series), dtype=float)
+            i = np.asarray(phys.sink_current(v, rp_lo, d.r_sink_low if low_end else d.r_sink,
+                                             d.r_series), dtype=float)
             # the level the sink guarantees: held to IOL past it (SINK_MODEL)
             levels.append((np.asarray(pu.held_low_level(vb, v, rp_lo, d.i_ol)), i, d, None))
+            plain.append(np.asarray(phys.low_level(v, rp_lo, d.r_sink_low, d.r_series),
+                                    dtype=float) if low_end else vb)
         else:
             # across a pass transistor the sink's datasheet point stays a resistance:
             # held to IOL, the level would rise to where the transistor stops conducting
@@ -65,8 +77,12 @@ def low_levels(v, rp_lo, drivers, far, segs, signal: str, phys=pu) -> tuple[list
                 v_th = v_th + vv / (rp + link.r_on)
             vb, _, i = (np.asarray(x, dtype=float) for x in pu.translator_low_levels(
                 v, rp_lo, v_th / g, 1.0 / g, 0.0, d.r_sink + d.r_series))
+            plain_vb = vb
+            if low_end:
+                plain_vb, _, i = (np.asarray(x, dtype=float) for x in pu.translator_low_levels(
+                    v, rp_lo, v_th / g, 1.0 / g, 0.0, d.r_sink_low + d.r_series))
             levels.append((vb, i, d, None))
-        plain.append(vb)
+            plain.append(plain_vb)
     for d, link, v_other, rp_other in far_drivers(far, segs, signal):
         _, vf, _ = pu.translator_low_levels(v_other, rp_other, v, rp_lo, link.r_on,
                                             d.r_sink + d.r_series)

@@ -136,12 +136,17 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     # an unbounded Rp(max) (Cb 0) is never the nearer bound: against it the margin
     # would be inf/inf
     low = (m_lo <= m_hi) | np.isinf(ln.rp_max)
-    # Rp(min) rests on the weakest sink's point (soft where it is a class's typical one)
-    soft = [np.logical_and(low, ln.soft_min)] if np.any(ln.soft_min) else None
-    out.pick("pullup-window", up, [(np.where(low, rp_lo, rp_hi),
-                                    np.where(low, ln.rp_min, ln.rp_max),
-                                    np.where(low, -1.0, 1.0), None)], warn, "Ω",
-             soft=soft).basis = (m_lo, m_hi)
+    # Rp(min) rests on the weakest sink's point (soft where it is a class's typical one);
+    # then the largest Rp(min) of a firm sink is a second row, firm: below it the window
+    # fails against it (a firm failure comes first, batchresult._worst_cell), above it
+    # the soft row (the larger Rp(min), the smaller margin) is the worst and warns
+    rows = [(np.where(low, rp_lo, rp_hi), np.where(low, ln.rp_min, ln.rp_max),
+             np.where(low, -1.0, 1.0), None)]
+    soft = None
+    if np.any(ln.soft_min):
+        soft = [np.logical_and(low, ln.soft_min), False]
+        rows.append(ge(rp_lo, ln.rp_min_firm))
+    out.pick("pullup-window", up, rows, warn, "Ω", soft=soft).basis = (m_lo, m_hi)
     tr = phys.rise_time(rp_hi, ln.cb, ln.rise_factor)
     f["rise_time"] = tr
     f["rise_time_10_90"] = phys.rise_time(rp_hi, ln.cb, RISE_10_90)
@@ -219,8 +224,8 @@ def _in_domain(ctx, ln: _Line, v, rp_lo, rp_hi, far) -> bool:
     at_least_0 = [v, ln.cb, ln.leakage]
     above_0 = [rp_lo, rp_hi, ln.rise_factor, v_hi - v_lo, f_start - f_lo]
     for d in ln.drivers:
-        at_least_0 += [d.r_sink, d.r_series]
-        above_0 += [d.v_ol, d.i_ol]
+        at_least_0 += [d.r_sink, d.r_sink_low, d.r_series]
+        above_0 += [d.v_ol, d.v_ol_low, d.i_ol]
     for d, link, _, _ in far_drivers(far, ctx.segs, ln.signal):  # their fall bounds
         at_least_0.append(d.r_series + link.r_on)
         above_0 += [d.v_ol, d.i_ol]

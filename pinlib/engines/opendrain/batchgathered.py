@@ -64,10 +64,11 @@ def line_from(li: LineInputs, seg: Segment, parts: _Parts, scen: Scenario) -> _L
                            parts.timing(t.dev), t.vdd, t.own, part_is_mosfet(t.dev.part),
                            scen.tap_rail(t.vdd, seg))
     drivers = [_Driver(taps[id(d.tap)], d.v_ol[None, :], d.i_ol, d.r_sink[None, :],
-                       d.r_series, d.offset) for d in li.drivers]
+                       d.r_series, d.offset, d.v_ol_low[None, :]) for d in li.drivers]
     receivers = [_Receiver(taps[id(r.tap)], r.v_il[None, :], r.v_ih[None, :])
                  for r in li.receivers]
     return _Line(li.signal, list(taps.values()), li.cb, li.leakage, drivers, receivers,
                  li.r_parts, li.rp_min, li.rp_max, li.rise_factor, li.rp_leak, li.rp_fast,
                  li.cb_low,
-                 soft_min=bool(rp_min_rests_on(li, seg.supply * (1 + seg.supply_tolerance))))
+                 soft_min=bool(rp_min_rests_on(li, seg.supply * (1 + seg.supply_tolerance))),
+                 rp_min_firm=li.rp_min_firm[0])

@@ -178,7 +178,7 @@ def rp_min_rests_on(li, v_max: float) -> list:
     if li.coupled:
         tying = [li.rp_min_driver] if li.rp_min_driver is not None else []
     else:
-        bounds = [float(rp_min_of(v_max, float(d.v_ol[1]), d.i_ol)) for d in li.drivers]
+        bounds = [float(rp_min_of(v_max, float(d.v_ol_low[1]), d.i_ol)) for d in li.drivers]
         best = max(bounds, default=0.0)
         tying = [d for d, r in zip(li.drivers, bounds, strict=True) if best > 0 and r == best]
     values = []
@@ -413,6 +413,14 @@ class _Driver:
     r_sink: Any            # v_ol / i_ol [Ω]
     r_series: Any
     offset: Any = None
+    #: v_ol at the low end of the device's own rail (``v_ol`` on the pull-up rail): the
+    #: sink's smallest resistance, for sink-current and Rp(min) (.inputs._Driver)
+    v_ol_low: Any = None
+
+    @property
+    def r_sink_low(self):
+        """``v_ol_low / i_ol``: the sink's smallest effective resistance. [Ω]"""
+        return self.v_ol_low / self.i_ol
 
 
 @value_class
@@ -448,6 +456,10 @@ class _Line:
     #: class's typical value or an estimate: PinData.soft_v_ol, soft_i_ol); a bool or a
     #: batch column
     soft_min: Any = False
+    #: the largest Rp(min) of the drivers whose sink point is firm (a datasheet's, the
+    #: specification's; 1 mΩ for none): where the pull-up is below it the window fails
+    #: against it, though Rp(min) itself rests on a soft sink. [Ω]
+    rp_min_firm: Any = 1e-3
 
 
 def _sink_soft(d) -> Any:
@@ -563,7 +575,8 @@ def _line(bus, seg, signal, function, v, parts, scen, lim, board) -> _Line:
     for t in taps:
         if not t.pin.driver:
             continue
-        v_ol = _corner(t.pin.v_ol, t, v, "max")
+        v_ol = _corner(t.pin.v_ol, t, v, "max")  # the worst for the low level and the fall
+        v_ol_low = _corner(t.pin.v_ol, t, v, "min")  # for the current and Rp(min)
         i_ol = t.pin.i_ol
         offset = None
         if t.part is not None and t.dev.side is not None and _offset_side(t.dev) == t.dev.side:
@@ -572,7 +585,7 @@ def _line(bus, seg, signal, function, v, parts, scen, lim, board) -> _Line:
                 offset = np.max(_corner(Level.of(side.low_offset), t, v, "max"), axis=1,
                                 keepdims=True)
         drivers.append(_Driver(t, v_ol, i_ol, v_ol / i_ol,
-                               scen.series(bus, seg, t.dev, signal), offset))
+                               scen.series(bus, seg, t.dev, signal), offset, v_ol_low))
     receivers = [_Receiver(t, _corner(t.pin.v_il, t, v, "min", t.pin.spec_levels[0]),
                            _corner(t.pin.v_ih, t, v, "max", t.pin.spec_levels[1]))
                  for t in taps if t.pin.receiver]
@@ -583,12 +596,14 @@ def _line(bus, seg, signal, function, v, parts, scen, lim, board) -> _Line:
                 contributors.append(scen.contributor(bus, seg, signal, len(contributors), value))
     r_parts = pu.parallel(*contributors) if contributors else math.inf
     v_max = v[:, -1:]
-    best, soft = 0.0, False
+    best, soft, firm = 0.0, False, 0.0
     for d in drivers:  # soft where every sink that sets it is (rp_min_rests_on)
-        r = rp_min_of(v_max, d.v_ol[:, -1:], d.i_ol)
-        soft = np.where(r > best, _sink_soft(d),
-                        np.where(r == best, np.logical_and(soft, _sink_soft(d)), soft))
+        r = rp_min_of(v_max, d.v_ol_low[:, -1:], d.i_ol)
+        d_soft = _sink_soft(d)
+        soft = np.where(r > best, d_soft,
+                        np.where(r == best, np.logical_and(soft, d_soft), soft))
         best = np.maximum(best, r)
+        firm = np.maximum(firm, np.where(d_soft, 0.0, r))
     soft = np.logical_and(soft, np.asarray(best) > 0)
     rp_min = np.where(np.asarray(best) > 0, best, 1e-3)
     rise_factor = lim.rise_factor(v[:, :1])
@@ -596,7 +611,7 @@ def _line(bus, seg, signal, function, v, parts, scen, lim, board) -> _Line:
     rp_leak = rp_leak_of(v, lim.v_nh_rel or 0.0, leak, [r.v_ih for r in receivers])
     return _Line(signal, taps, cb, leak, drivers, receivers, r_parts, rp_min, rp_max,
                  rise_factor, rp_leak, rp_fast_of(lim, v, rise_factor, c_low), c_low,
-                 soft_min=soft)
+                 soft_min=soft, rp_min_firm=np.where(np.asarray(firm) > 0, firm, 1e-3))
 
 
 def _choose(s: _Seg) -> None:
@@ -618,12 +633,15 @@ def _rp_min_coupled(s: _Seg, signal: str, segs: list[_Seg], links: list[_Link]):
     sets the line's :attr:`_Line.soft_min` from the sink that bounds it."""
     far = [(link, segs[link.other].v[:, -1:], segs[link.other].r_lo(signal))
            for link in links if link.kind == "mosfet"]
-    best, soft = np.asarray(1e-3), False
+    best, soft, firm = np.asarray(1e-3), False, np.asarray(1e-3)
     for r, d, _ in coupled_sinks(s.v[:, -1:], s.lines[signal].drivers, far, segs, signal,
                                  lambda x: x[:, -1:]):
-        soft = np.where(r > best, _sink_soft(d), soft)
+        d_soft = _sink_soft(d)
+        soft = np.where(r > best, d_soft, soft)
         best = np.where(r > best, r, best)
+        firm = np.where(~np.asarray(d_soft) & (r > firm), r, firm)
     s.lines[signal].soft_min = soft
+    s.lines[signal].rp_min_firm = firm
     return best
 
 

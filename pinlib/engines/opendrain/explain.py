@@ -171,8 +171,9 @@ def _sink_advice(v_max: float, ln: LineInputs, tol: float, weakest) -> list[str]
     if weakest is None:
         return []
     d = weakest
-    i_need = float(pu.sink_current_needed(v_max, float(d.v_ol[1]), ln.rp_max, tol))
-    return [f"drivers sinking at least {_f(i_need, 'A')} at {_f(float(d.v_ol[1]), 'V')} "
+    v_ol = float(d.v_ol_low[1])  # Rp(min)'s point (the low end of its own rail)
+    i_need = float(pu.sink_current_needed(v_max, v_ol, ln.rp_max, tol))
+    return [f"drivers sinking at least {_f(i_need, 'A')} at {_f(v_ol, 'V')} "
             f"(the weakest, {d.tap.label}, is rated {_f(d.i_ol, 'A')})"]
 
 

@@ -123,6 +123,15 @@ class _Driver:
     #: whether a limit resting on them is soft (model.result.soft_limit)
     v_ol_value: Sourced | None = None
     i_ol_value: Sourced | None = None
+    #: the low level at ``i_ol`` at the low end of the device's own rail, per corner (the
+    #: same as ``v_ol`` for a device on the pull-up rail): the sink's smallest resistance,
+    #: which draws the most current (sink-current) and sets Rp(min) (UM10204 eq. 2) [V]
+    v_ol_low: np.ndarray | None = None
+
+    @property
+    def r_sink_low(self):
+        """The sink's smallest effective resistance ``v_ol_low / i_ol``, per corner. [Ω]"""
+        return self.v_ol_low / self.i_ol
 
 
 @value_class
@@ -188,6 +197,27 @@ class LineInputs:
     #: Cb with every tolerance at its low end (the pins as stated, their maxima): the
     #: fastest rise's, :data:`cb` being every contribution at its maximum. [F]
     cb_low: float = math.nan
+    #: The largest Rp(min) of the drivers whose sink point is firm (a datasheet's, the
+    #: specification's), the driver and its label (``(1e-3, None, "")`` for none): where
+    #: the pull-up is below it, the window fails against it even where Rp(min) rests on
+    #: a soft sink (a class's typical one) and only warns. [Ω]
+    rp_min_firm: tuple = (1e-3, None, "")
+
+
+def firm_sink(d: _Driver) -> bool:
+    """Whether a driver's sink point (its ``v_ol`` and ``i_ol`` taken) is firm: neither
+    is a class's typical value or an estimate (:attr:`Sourced.soft`). [1]"""
+    return not any(x is not None and x.soft for x in (d.v_ol_value, d.i_ol_value))
+
+
+def _firmest(bounds) -> tuple:
+    """``(r, driver, label)`` of the largest Rp(min) ``r`` among ``bounds`` (the same
+    triples) whose driver's sink is firm; ``(1e-3, None, "")`` for none. [Ω]"""
+    best = (1e-3, None, "")
+    for r, d, label in bounds:
+        if firm_sink(d) and float(r) > best[0]:
+            best = (float(r), d, label)
+    return best
 
 
 @value_class
@@ -355,8 +385,8 @@ def _refuse_below_ground(v_ol: np.ndarray, value: Sourced, tap: _Tap, v: np.ndar
         return
     ends = _rail_ends(tap, v, vtol)
     vals = np.asarray(value.at(ends), dtype=float)
-    # where the value was taken: the lowest rail corner, or the own rail's end it used
-    at = float(ends[int(np.argmax(vals) if tap.own else np.argmin(vals))])
+    # where the value was taken: the lowest rail corner, or the own rail's lowest level
+    at = float(ends[int(np.argmin(vals))])
     err = DesignError(M.LEVEL_BELOW_GROUND, field="v_ol", value=value.text,
                       expected=M.LEVEL_BELOW_GROUND_EXPECTED.format(
                           level=format_si(worst, "V"), vdd=format_si(at, "V")))
@@ -378,8 +408,12 @@ def _drivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
         if t.pin.v_ol is None or t.pin.i_ol is None:
             _default(seg_in, f"no sink point (v_ol, i_ol) stated: taken at the specification's "
                              f"{rule} ({lim.source_sink})", f"{t.label} {up}")
+        # the low level at the end of its own rail that hurts each check: the highest
+        # for the bus's low level and the fall, the lowest for the current it draws and
+        # Rp(min)
         v_ol = _corner_values(vol_s, t, v, vtol, "max")
-        _refuse_below_ground(v_ol, vol_s, t, v, vtol)
+        v_ol_low = _corner_values(vol_s, t, v, vtol, "min")
+        _refuse_below_ground(v_ol_low, vol_s, t, v, vtol)
         i_ol = float(iol_s.value)
         if lim.protocol == "i2c" and t.pin.v_ol is not None and t.pin.i_ol is not None:
             _below_spec_sink(seg_in, t, i_ol, d_vol, d_iol, rule, lim, up)
@@ -390,7 +424,7 @@ def _drivers(taps: list[_Tap], seg_in: SegmentInputs, lim: OpenDrainLimits,
             if side.low_offset is not None:
                 offset = float(np.max(_corner_values(side.low_offset, t, v, vtol, "max")))
         drivers.append(_Driver(t, v_ol, i_ol, v_ol / i_ol, t.dev.series_resistor or 0.0, src,
-                               offset, vol_s, iol_s))
+                               offset, vol_s, iol_s, v_ol_low))
     return drivers
 
 
@@ -476,7 +510,7 @@ def _weakest_sink(drivers: list[_Driver], v_max: float) -> tuple[float, _Driver 
     no driver bounds Rp from below); all drivers in one array. [Ω]"""
     if not drivers:
         return 1e-3, None
-    r = rp_min_of(v_max, np.array([float(d.v_ol[1]) for d in drivers]),
+    r = rp_min_of(v_max, np.array([float(d.v_ol_low[1]) for d in drivers]),
                   np.array([d.i_ol for d in drivers]))
     k = int(np.argmax(r))
     return (float(r[k]), drivers[k]) if r[k] > 0 else (1e-3, None)
@@ -495,13 +529,16 @@ def _line_inputs(signal: str, seg_in: SegmentInputs, lim: OpenDrainLimits,
     part_pullups = _part_pullups(taps, seg_in, up)
     r_parts = float(pu.parallel(*[p["value"] for p in part_pullups])) if part_pullups else math.inf
     rp_min, weakest = _weakest_sink(drivers, float(v[1]))
+    firm = _firmest((rp_min_of(float(v[1]), float(d.v_ol_low[1]), d.i_ol), d, d.tap.label)
+                    for d in drivers)
     rise_factor = float(lim.rise_factor(float(v[0])))
     rp_max = rp_max_of(lim, rise_factor, cb)
     rp_leak = rp_leak_of(v, lim.v_nh_rel or 0.0, leak, [r.v_ih for r in receivers])
     return LineInputs(signal, taps, cb, cb_parts, leak, drivers, receivers, part_pullups,
                       r_parts, rp_min, weakest, rp_max, rise_factor,
                       weakest.tap.label if weakest else "", rp_leak=rp_leak,
-                      rp_fast=rp_fast_of(lim, v, rise_factor, cb_low), cb_low=cb_low)
+                      rp_fast=rp_fast_of(lim, v, rise_factor, cb_low), cb_low=cb_low,
+                      rp_min_firm=firm)
 
 
 def _choose(seg_in: SegmentInputs) -> None:
@@ -575,20 +612,23 @@ def collect(bus: Bus, design: Design) -> tuple[OpenDrainLimits, list[SegmentInpu
 
 
 def _rp_min_coupled(seg_in: SegmentInputs, signal: str, seg_ins: list[SegmentInputs],
-                    links: list[_Link]) -> tuple[float, _Driver | None, str]:
+                    links: list[_Link]) -> tuple[float, _Driver | None, str, tuple]:
     """Rp(min) of a segment joined to others through pass transistors (see
-    :func:`coupled_sinks`), the weakest sink and its label."""
+    :func:`coupled_sinks`), the weakest sink and its label, and the firm sinks' largest
+    (:attr:`LineInputs.rp_min_firm`)."""
     far = [(link, float(seg_ins[link.other].vdd[1]),
             seg_ins[link.other].r_eff(signal) * (1 - seg_ins[link.other].tol))
            for link in links if link.kind == "mosfet"]
     best, who, label = 1e-3, None, ""
+    bounds = []
     for r, d, link in coupled_sinks(float(seg_in.vdd[1]), seg_in.lines[signal].drivers, far,
                                     seg_ins, signal, lambda x: float(x[1])):
         r = float(r)
+        name = d.tap.label if link is None else f"{d.tap.label} via {link.dev.ref}"
+        bounds.append((r, d, name))
         if r > best:
-            best, who = r, d
-            label = d.tap.label if link is None else f"{d.tap.label} via {link.dev.ref}"
-    return best, who, label
+            best, who, label = r, d, name
+    return best, who, label, _firmest(bounds)
 
 
 def _own_window(s: SegmentInputs) -> bool:
@@ -650,7 +690,7 @@ def _sinks_full(s: SegmentInputs) -> bool:
 
 def _set_coupled(s: SegmentInputs, seg_ins: list[SegmentInputs], links) -> None:
     for sig, ln in s.lines.items():
-        ln.rp_min, ln.rp_min_driver, ln.rp_min_label = _rp_min_coupled(
+        ln.rp_min, ln.rp_min_driver, ln.rp_min_label, ln.rp_min_firm = _rp_min_coupled(
             s, sig, seg_ins, links[s.index])
         ln.coupled = True
 

@@ -207,7 +207,8 @@ def coupled_sinks(v_max, drivers, far, segs, signal: str, top):
     segs : list
         Every segment by index (``lines[signal].drivers``). [1]
     top : callable
-        A driver's ``v_ol`` at the rail's maximum. [V]
+        A driver's low level at the rail's maximum, of its ``v_ol_low`` (the low end
+        of its own rail: the most current, the largest Rp(min)). [V]
 
     Yields
     ------
@@ -215,7 +216,7 @@ def coupled_sinks(v_max, drivers, far, segs, signal: str, top):
         Rp(min) of one driver, the driver, and the link it acts through. [Ω]
     """
     for d in drivers:
-        v_ol = top(d.v_ol)
+        v_ol = top(d.v_ol_low)
         i_far = 0
         for link, vo, rp in far:
             i_far = i_far + _clip0(vo - v_ol) / (rp + link.r_on)
@@ -224,7 +225,7 @@ def coupled_sinks(v_max, drivers, far, segs, signal: str, top):
         for d in segs[link.other].lines[signal].drivers:
             if d.tap.dev.is_bridge:
                 continue
-            v_ol = top(d.v_ol)
+            v_ol = top(d.v_ol_low)
             yield (_over_budget(v_max - v_ol, d.i_ol - _clip0(vo - v_ol) / rp_o,
                                 link.r_on), d, link)
 

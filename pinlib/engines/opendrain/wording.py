@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import math
 
+from pinlib.core import messages as M
 from pinlib.core.labels import and_list, few_named
 from pinlib.engines.opendrain.arith import BY_PART, far_drivers
 from pinlib.engines.opendrain.batchfigures import one
@@ -323,11 +324,21 @@ def _window(w: Words, ln: LineInputs, r_eff: float, rp_lo: float) -> Check:
         sign = "−" if m_lo <= m_hi or not math.isfinite(ln.rp_max) else "+"
         chk = make(bc, src, f"{up} pull-up {shown} at {sign}{_f(tol, '%')}: {_f(value, 'Ω')} "
                    f"against the window {window}", subject=up, details=details)
+    # the batch's second row: the largest Rp(min) of a firm sink, where Rp(min) itself
+    # rests on a soft one and the pull-up is below the firm bound too (it fails)
+    firm_row = bc.row is not None and int(bc.row[0]) == 1
+    if firm_row:
+        r_f, d_f, label_f = ln.rp_min_firm
+        basis = getattr(d_f.i_ol_value, "rests_on", None) or "published"
+        chk.message += M.WINDOW_BELOW_FIRM.format(limit=_f(r_f, 'Ω'), driver=label_f,
+                                                  basis=basis)
+        chk.source = f"{src}; Rp(min) {_f(r_f, 'Ω')} from {d_f.source_i}"
+        chk.details.update(rp_min_firm=r_f, rp_min_firm_driver=label_f)
     if chk.status == "fail":
         _failed(chk, window_advice(lim, seg_in, ln, m_lo, m_hi))
     # at its lower end the window rests on the weakest sink's point (Rp(min), eq. 2)
     low = m_lo <= m_hi or not math.isfinite(ln.rp_max)  # the batch's end
-    values = rp_min_rests_on(ln, float(seg_in.vdd[1])) if low else []
+    values = rp_min_rests_on(ln, float(seg_in.vdd[1])) if low and not firm_row else []
     return firm_or_soft(chk, bc, *values, what="sink point (v_ol at i_ol)")
 
 
@@ -423,10 +434,12 @@ def _sink(w: Words, ln: LineInputs, far: list) -> None:
     order = sorted(range(len(currents)),
                    key=lambda j: -(currents[j] / ln.drivers[bc.basis[j]].i_ol))
     extra = " and the far side's pull-up through the translator" if far else ""
+    # a driver on its own rail draws the most at that rail's minimum (its smallest VOL)
+    own = M.SINK_OWN_RAIL_LOW.format(vdd=_f(d.tap.vdd, 'V')) if d.tap.own else ""
     chk = make(bc, d.source_i,
                f"{up} sink current {_f(bc.value[0], 'A')} (pull-up at −{_f(tol, '%')}, rail at its "
-               f"maximum{extra}) against {d.tap.label}'s rating {_f(d.i_ol, 'A')} at "
-               f"{_f(float(d.v_ol[1]), 'V')}", subject=f"{up} {d.tap.label}",
+               f"maximum{extra}{own}) against {d.tap.label}'s rating {_f(d.i_ol, 'A')} at "
+               f"{_f(float(d.v_ol_low[1]), 'V')}", subject=f"{up} {d.tap.label}",
                details={"drivers": {ln.drivers[bc.basis[j]].tap.label: currents[j]
                                     for j in order}})
     if chk.status == "fail" and not math.isfinite(ln.rp_min):

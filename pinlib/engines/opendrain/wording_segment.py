@@ -9,6 +9,7 @@ import math
 
 import numpy as np
 
+from pinlib.core import messages as M
 from pinlib.core.labels import few_named
 from pinlib.engines.opendrain.batchfigures import one
 from pinlib.engines.opendrain.batchinputs import sda_valid_time
@@ -211,11 +212,25 @@ def _timing(w: Words, sb) -> None:
     t = bc.basis
     tvd, ref = one(t["t_vd"][k]), bc.names[k]
     own, which = sda_valid_time(devices[ref].part, lim)
-    grp.add(make(bc, f"{lim.source_timing}; tVD;DAT {lim.source_vd_dat}",
-                 f"SDA data setup tLOW {_f(t['t_low'], 's')} − {which} {_f(tvd, 's')} "
-                 f"({ref}{', incl. bridge delays' if tvd > own else ''}) − tr "
-                 f"{_f(one(t['t_r']), 's')} = {_f(bc.value[0], 's')} against tSU;DAT "
-                 f"{_f(lim.t_su_dat, 's')}", subject=f"SDA {ref}"))
+    # where the valid time came from: the part's value (its basis and source, as
+    # value_source words it), else the specification's
+    field = "t_vd_ack" if which == "tVD;ACK" else "t_vd_dat"
+    value = getattr(devices[ref].part.timing, field)
+    src = (f"{which} {value_source(devices[ref], f'timing.{field}', value)}"
+           if value is not None else f"tVD;DAT {lim.source_vd_dat}")
+    chk = make(bc, f"{lim.source_timing}; {src}",
+               f"SDA data setup tLOW {_f(t['t_low'], 's')} − {which} {_f(tvd, 's')} "
+               f"({ref}{', incl. bridge delays' if tvd > own else ''}) − tr "
+               f"{_f(one(t['t_r']), 's')} = {_f(bc.value[0], 's')} against tSU;DAT "
+               f"{_f(lim.t_su_dat, 's')}", subject=f"SDA {ref}")
+    if value is not None and value.soft:  # the value side rests on a soft number
+        chk.details = {**(chk.details or {}), "value_basis": value.rests_on}
+    if value is not None and value.soft and chk.status != "pass":
+        chk.message += M.SETUP_SOFT_VALID.format(
+            which=which, value=_f(own, 's'), field=field,
+            kind=(M.SETUP_SOFT_GENERIC if value.rests_on == "generic"
+                  else M.SETUP_SOFT_ESTIMATE).format(ref=ref))
+    grp.add(chk)
 
 
 def _abs_max_rail(t, seg) -> float:

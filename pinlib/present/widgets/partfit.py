@@ -99,12 +99,22 @@ def _firm(unfit: list[Unfit]) -> bool:
 
 
 def unfit_label(label: str, unfit: list[Unfit]) -> str:
-    """A part's option with what it would fail ("… — fails here: up to 100 kHz"), or
-    warn where every such limit is soft ("… — warns here: ...")."""
+    """A part's option with what it would fail ("… — fails here: up to 100 kHz"), then
+    what it would only warn on ("; warns: supply 4.5 V–5.5 V"), or "… — warns here: ..."
+    where every such limit is soft."""
     if not unfit:
         return label
-    return (f"{label} — {'fails' if _firm(unfit) else 'warns'} here: "
-            + "; ".join(u.short for u in unfit))
+    if not _firm(unfit):
+        return f"{label} — warns here: " + "; ".join(u.short for u in unfit)
+    firm, soft = _split(unfit)
+    text = f"{label} — fails here: " + "; ".join(u.short for u in firm)
+    return text + ("; warns: " + "; ".join(u.short for u in soft) if soft else "")
+
+
+def _split(unfit: list[Unfit]) -> tuple[list[Unfit], list[Unfit]]:
+    """``unfit`` in two: those against a firm limit (the engine's check fails) and those
+    against a soft one (it only warns)."""
+    return [u for u in unfit if u.soft is None], [u for u in unfit if u.soft is not None]
 
 
 def unfit_sentence(pid: str, unfit: list[Unfit]) -> str:
@@ -115,5 +125,11 @@ def unfit_sentence(pid: str, unfit: list[Unfit]) -> str:
     if not _firm(unfit):
         return (M.UNFIT_SOFT.format(part=pid, checks=checks)
                 + "; ".join(u.reason for u in unfit) + ".")
-    return (f"If added, {pid} would fail this bus ({checks}): "
-            + "; ".join(u.reason for u in unfit) + ".")
+    # which checks would fail and which would only warn (a class's typical value)
+    firm, soft = _split(unfit)
+    text = (M.UNFIT_FIRM.format(part=pid, checks=", ".join(u.check for u in firm))
+            + "; ".join(u.reason for u in firm))
+    if soft:
+        text += (M.UNFIT_ALSO_WARN.format(checks=", ".join(u.check for u in soft))
+                 + "; ".join(u.reason for u in soft))
+    return text + "."
