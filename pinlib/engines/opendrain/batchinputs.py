@@ -457,9 +457,10 @@ class _Line:
     #: batch column
     soft_min: Any = False
     #: the largest Rp(min) of the drivers whose sink point is firm (a datasheet's, the
-    #: specification's; 1 mΩ for none): where the pull-up is below it the window fails
-    #: against it, though Rp(min) itself rests on a soft sink. [Ω]
-    rp_min_firm: Any = 1e-3
+    #: specification's; 0 Ω for none, which every pull-up meets): where the pull-up is
+    #: below it the window fails against it, though Rp(min) itself rests on a soft
+    #: sink. [Ω]
+    rp_min_firm: Any = 0.0
 
 
 def _sink_soft(d) -> Any:
@@ -611,7 +612,7 @@ def _line(bus, seg, signal, function, v, parts, scen, lim, board) -> _Line:
     rp_leak = rp_leak_of(v, lim.v_nh_rel or 0.0, leak, [r.v_ih for r in receivers])
     return _Line(signal, taps, cb, leak, drivers, receivers, r_parts, rp_min, rp_max,
                  rise_factor, rp_leak, rp_fast_of(lim, v, rise_factor, c_low), c_low,
-                 soft_min=soft, rp_min_firm=np.where(np.asarray(firm) > 0, firm, 1e-3))
+                 soft_min=soft, rp_min_firm=firm)
 
 
 def _choose(s: _Seg) -> None:
@@ -633,7 +634,8 @@ def _rp_min_coupled(s: _Seg, signal: str, segs: list[_Seg], links: list[_Link]):
     sets the line's :attr:`_Line.soft_min` from the sink that bounds it."""
     far = [(link, segs[link.other].v[:, -1:], segs[link.other].r_lo(signal))
            for link in links if link.kind == "mosfet"]
-    best, soft, firm = np.asarray(1e-3), False, np.asarray(1e-3)
+    # no firm sink: a bound of 0 Ω, which every pull-up meets (batchresult: +inf)
+    best, soft, firm = np.asarray(1e-3), False, np.asarray(0.0)
     for r, d, _ in coupled_sinks(s.v[:, -1:], s.lines[signal].drivers, far, segs, signal,
                                  lambda x: x[:, -1:]):
         d_soft = _sink_soft(d)

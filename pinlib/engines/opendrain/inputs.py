@@ -201,7 +201,7 @@ class LineInputs:
     #: specification's), the driver and its label (``(1e-3, None, "")`` for none): where
     #: the pull-up is below it, the window fails against it even where Rp(min) rests on
     #: a soft sink (a class's typical one) and only warns. [Ω]
-    rp_min_firm: tuple = (1e-3, None, "")
+    rp_min_firm: tuple = (0.0, None, "")
 
 
 def firm_sink(d: _Driver) -> bool:
@@ -212,8 +212,9 @@ def firm_sink(d: _Driver) -> bool:
 
 def _firmest(bounds) -> tuple:
     """``(r, driver, label)`` of the largest Rp(min) ``r`` among ``bounds`` (the same
-    triples) whose driver's sink is firm; ``(1e-3, None, "")`` for none. [Ω]"""
-    best = (1e-3, None, "")
+    triples) whose driver's sink is firm; ``(0.0, None, "")`` for none (a bound every
+    pull-up meets, even one of a milliohm). [Ω]"""
+    best = (0.0, None, "")
     for r, d, label in bounds:
         if firm_sink(d) and float(r) > best[0]:
             best = (float(r), d, label)

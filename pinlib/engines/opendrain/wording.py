@@ -326,7 +326,8 @@ def _window(w: Words, ln: LineInputs, r_eff: float, rp_lo: float) -> Check:
                    f"against the window {window}", subject=up, details=details)
     # the batch's second row: the largest Rp(min) of a firm sink, where Rp(min) itself
     # rests on a soft one and the pull-up is below the firm bound too (it fails)
-    firm_row = bc.row is not None and int(bc.row[0]) == 1
+    firm_row = (bc.row is not None and int(bc.row[0]) == 1
+                and ln.rp_min_firm[1] is not None)
     if firm_row:
         r_f, d_f, label_f = ln.rp_min_firm
         basis = getattr(d_f.i_ol_value, "rests_on", None) or "published"
