@@ -267,3 +267,16 @@ def test_no_time_at_all_takes_the_firmness_of_the_threshold_not_crossed(tmp_path
     want = "fail" if firm else "warn"
     assert level.status == want and pulse.status == want
     assert ("limit_basis" in pulse.details) is not firm
+
+
+def test_the_review_tables_say_why_beside_the_limit(tmp_path, monkeypatch):
+    # the Markdown review prints no message beside its checks table: the limit cell says
+    # why a check beyond it only warns
+    from pinlib.cli import main
+
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    _checks(tmp_path, None)
+    assert main(["report", str(tmp_path / "d.toml"), "--md", str(tmp_path / "r.md")]) == 0
+    text = (tmp_path / "r.md").read_text("utf-8")
+    assert "| 120 MHz | 104 MHz (a class's typical value) |" in text
+    assert "the design warns (" in " ".join(text.split())

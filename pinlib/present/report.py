@@ -32,6 +32,7 @@ from pinlib.model.result import (
 from pinlib.present.detail import detail_lines
 from pinlib.present.terminal import DEFAULT_WIDTH, status_word, wrap
 from pinlib.present.values import (
+    SOFT_TAGS,
     assumed_cs_words,
     counts,
     format_value,
@@ -85,13 +86,6 @@ def _against(c: Check) -> str:
         # gate drive's 1 V rule of thumb), which the status line's percent does not say
         text += f" (warns below {format_value(below, c.margin_unit)})"
     return text
-
-
-#: Beside a limit that a check beyond it only warns against: no datasheet stands behind
-#: it (:func:`pinlib.model.result.soften`, by its basis), or it is a rule of thumb
-#: (:func:`pinlib.model.result.rule_of_thumb`).
-SOFT_TAGS = {"generic": " (a class's typical value)", "estimate": " (an estimate)",
-             "rule": " (a rule of thumb)"}
 
 
 #: The same after a check's reason, where it has no value and limit to stand beside.

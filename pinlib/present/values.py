@@ -13,7 +13,8 @@ from pinlib.model.result import BusResult, Check, DesignResult, Figure, figure_t
 
 __all__ = ["format_value", "counts", "with_fix", "figure_cells", "assumed_cs",
            "assumed_cs_words", "SEARCH_BOUNDS",
-           "search_bound_words", "limit_side", "FLIGHTS", "FLIGHT_HEAD", "flight_rows"]
+           "search_bound_words", "limit_side", "FLIGHTS", "FLIGHT_HEAD", "flight_rows",
+           "SOFT_TAGS", "soft_words", "warns_beyond", "check_cells"]
 
 #: Figures a search gives (a coupling's), with the figure of the search's own bound and
 #: the words a result at that bound takes: there the search found no end, so "18 µm"
@@ -105,13 +106,22 @@ _COMPARED = {
 }
 
 
-def check_cells(c: Check, *, answer: bool = False) -> tuple[str, str]:
+#: Beside a limit that a check beyond it only warns against: no datasheet stands behind
+#: it (:func:`pinlib.model.result.soften`, by its basis), or it is a rule of thumb
+#: (:func:`pinlib.model.result.rule_of_thumb`); :func:`warns_beyond` says which.
+SOFT_TAGS = {"generic": " (a class's typical value)", "estimate": " (an estimate)",
+             "rule": " (a rule of thumb)"}
+
+
+def check_cells(c: Check, *, answer: bool = False, why: bool = False) -> tuple[str, str]:
     """A check's value and limit cells, as every table writes them (the text, the
     report, the widgets).
 
     A number is written with its unit.  A yes/no check whose details say what was
     compared shows that ("mode 1" against "modes 0, 3"); another one shows its answer
-    ("yes", "no") where ``answer`` (the report's table), else nothing, and no limit."""
+    ("yes", "no") where ``answer`` (the report's table), else nothing, and no limit.
+    With ``why`` (the widgets' and the reviews' tables, which print no message beside
+    them), a limit a check beyond it only warns against says why (:data:`SOFT_TAGS`)."""
     if isinstance(c.value, bool):
         details = c.details if isinstance(c.details, dict) else {}
         make = _COMPARED.get(c.id)
@@ -120,6 +130,8 @@ def check_cells(c: Check, *, answer: bool = False) -> tuple[str, str]:
             return shown
         return ("yes" if c.value else "no") if answer else "", ""
     limit = "" if isinstance(c.limit, bool) else format_value(c.limit, c.unit)
+    if limit and why:  # why a check beyond it only warns
+        limit += SOFT_TAGS.get(warns_beyond(c) or "", "")
     return format_value(c.value, c.unit), limit
 
 

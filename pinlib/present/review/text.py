@@ -29,7 +29,7 @@ def _value(value, unit: str) -> str:
 def _check_cells(c: Check) -> tuple[str, str]:
     """A check's value and limit as text; a yes/no check shows what it compared, or its
     answer, and no limit (:func:`pinlib.present.values.check_cells`)."""
-    return check_cells(c, answer=True)
+    return check_cells(c, answer=True, why=True)
 
 
 def _message(c: Check) -> str:

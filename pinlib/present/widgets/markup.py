@@ -126,7 +126,7 @@ def checks_table(bus_result: BusResult, caption: str = "Checks", name: str | Non
     for seg, sig, c in bus_result.all_checks():
         where = " ".join(str(x) for x in (seg or sig or name or bus_result.id, c.subject)
                          if x)
-        value, limit = check_cells(c)
+        value, limit = check_cells(c, why=True)
         if limit_side(c):
             # the side of the limit the value keeps: a window check's nearer end is a
             # minimum on one row and a maximum on the next
