@@ -71,6 +71,10 @@ class McCheck:
     margin_unit : str or None
         The unit of an absolute margin (``"V"``: a translator's gate overdrive), None
         for a margin relative to its limit (:attr:`pinlib.model.result.Check.margin_unit`).
+    warns_only : str or None
+        Why it warns where its margin would fail, as the engine's check says: ``"rule"``
+        (a rule of thumb), ``"generic"`` or ``"estimate"`` (its limit's basis,
+        :func:`pinlib.model.result.soften`); None for a check that can fail. [1]
     """
 
     name: str
@@ -96,6 +100,7 @@ class McCheck:
     sampled: int | None = None
     histogram: MarginHistogram | None = None
     margin_unit: str | None = None
+    warns_only: str | None = None
 
     @property
     def label(self) -> str:
@@ -240,7 +245,11 @@ class McResult:
                 sens = c.sensitivity_text()
                 # a rule of thumb's check warns below its limit: 100 % passing beside a
                 # margin of -89 % says so, or it reads as a contradiction
-                warned = f"warns on {c.warns}; " if c.warns else ""
+                # beyond its limit on some board, why that only warns
+                lowest = _low(c)
+                why = (_ONLY_WARNS.get(c.warns_only, "") if lowest is not None
+                       and lowest < 0 else "")
+                warned = f"warns on {c.warns}{why}; " if c.warns else ""
                 if c.absent:  # counted as passing: the text says the check is not there
                     warned += absent_words(c.absent) + "; "
                 # "min" beside its margin (one space: a wrapped row keeps them together),
@@ -271,6 +280,11 @@ class McResult:
         for n in self.notes:
             lines.append(f"  note: {n}")
         return "\n".join(lines) + "\n"
+
+
+#: After a count of boards that warn: why the check warns and never fails there.
+_ONLY_WARNS = {"rule": " (a rule of thumb)", "generic": " (a class's typical limit)",
+               "estimate": " (an estimated limit)"}
 
 
 def _low(c: McCheck) -> float | None:
