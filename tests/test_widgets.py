@@ -37,6 +37,7 @@ pytest.importorskip("ipywidgets")
 pytest.importorskip("altair")
 pytest.importorskip("vl_convert")
 
+from pinlib.core import messages as M  # noqa: E402
 from pinlib.core.errors import DesignError, InputError, WriteError  # noqa: E402
 from pinlib.core.quantity import format_si  # noqa: E402
 from pinlib.core.tomlfile import tomllib  # noqa: E402
@@ -979,6 +980,10 @@ def test_swap_candidates_ranking(explorer, monkeypatch):
     assert r is not None and r.ref == "U4" and r.candidates
     assert explorer.candidates_box.layout.display is None
     assert r.candidates[0].part in explorer.candidates_html.value
+    # a part that warns at a negative margin (mcu-5v past mcu-5v's class supply range,
+    # typical of its class) has the key line under the table, as the command writes it
+    assert any(c.status == "warn" and (c.worst_margin or 0) < 0 for c in r.candidates[:10])
+    assert M.CANDIDATE_WARN_BEYOND in html.unescape(explorer.candidates_html.value)
     import importlib.util
 
     real = importlib.util.find_spec

@@ -287,6 +287,14 @@ class Ranking:
                 "set_aside": dict(self.set_aside), "count": len(self.candidates),
                 "candidates": [c.to_json() for c in shown], "notes": list(self.notes)}
 
+    @staticmethod
+    def warn_key(shown) -> list[str]:
+        """The key line under a ranking where a candidate ``shown`` warns at a negative
+        margin (beyond a limit that only warns), else none."""
+        beyond = any(c.status == "warn" and c.worst_margin is not None
+                     and c.worst_margin < 0 for c in shown)
+        return [M.CANDIDATE_WARN_BEYOND] if beyond else []
+
     def status_notes(self, shown) -> list[str]:
         """For the candidates ``shown`` whose status a check they cannot move sets
         (marked †): which check, once each."""
@@ -353,10 +361,8 @@ class Ranking:
                 why = reason.removeprefix("none: ").removeprefix("none, ")
                 note = f"— {label}: {why} ({_listed(parts)})"
                 lines += [note] if width is None else wrap(note, width, subsequent="  ")
-            if any(c.status == "warn" and c.worst_margin is not None
-                   and c.worst_margin < 0 for c in shown):
-                lines += wrap(M.CANDIDATE_WARN_BEYOND, width, subsequent="  ") \
-                    if width is not None else [M.CANDIDATE_WARN_BEYOND]
+            for key in self.warn_key(shown):
+                lines += wrap(key, width, subsequent="  ") if width is not None else [key]
             for note in self.status_notes(shown):
                 lines += [note] if width is None else wrap(note, width, subsequent="  ")
         for n in self.notes:

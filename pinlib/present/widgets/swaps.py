@@ -559,7 +559,7 @@ class SwapExplorer(_Panel):
         more = (f"<div>{len(r.candidates) - top} more not shown</div>"
                 if len(r.candidates) > top else "")
         notes = "".join(f"<li>{e(n)}</li>" for n in
-                        r.status_notes(listed) + list(r.notes))
+                        r.status_notes(listed) + r.warn_key(listed) + list(r.notes))
         where = "; ".join(bus_text(b) for b in r.buses)
         return (f'<div style="{BLOCK};font-size:12px">Position {e(r.ref)}, now '
                 f"<code>{e(r.current)}</code>: {e(where)}<br>{e(r.count_text())}</div>"
