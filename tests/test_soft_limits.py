@@ -283,3 +283,17 @@ def test_the_review_tables_say_why_beside_the_limit(tmp_path, monkeypatch):
     text = (tmp_path / "r.md").read_text("utf-8")
     assert "| 120 MHz | 104 MHz (a class's typical value) |" in text
     assert "the design warns (" in " ".join(text.split())
+
+
+def test_the_summary_of_many_designs_counts_them_too(tmp_path, monkeypatch, capsys):
+    from pinlib.cli import main
+
+    monkeypatch.setenv("COLUMNS", "80")
+    monkeypatch.delenv("PINLIB_LIBRARY", raising=False)
+    _checks(tmp_path, None)
+    other = tmp_path / "again.toml"
+    other.write_text((tmp_path / "d.toml").read_text("utf-8"), "utf-8")
+    assert main(["check", str(tmp_path / "d.toml"), str(other), "--jobs", "1"]) == 0
+    out = capsys.readouterr().out
+    assert out.count("beyond a class's typical or an estimated limit), 0 fail") == 2
+    assert max(len(line) for line in out.splitlines()) <= 80

@@ -38,6 +38,7 @@ __all__ = [
     "soft_basis",
     "soften",
     "warns_only",
+    "warns_beyond",
     "min_margin",
     "max_margin",
     "status_codes",
@@ -403,6 +404,19 @@ def warns_only(check: Check) -> bool:
     (:func:`rule_of_thumb`) or a limit that rests on a soft value (:func:`soft_limit`).
     The array paths (corners, Monte Carlo tables) cap its status at a warning."""
     return bool(check.details.get("rule_of_thumb")) or "limit_basis" in check.details
+
+
+def warns_beyond(c: Check) -> str | None:
+    """Why a check beyond its limit (a negative margin, or a yes/no check's warning)
+    warns and does not fail: ``"rule"`` (a rule of thumb), or the basis of a limit no
+    datasheet states (``"generic"``, ``"estimate"``); None for any other check."""
+    details = c.details if isinstance(c.details, dict) else {}
+    beyond = c.margin is None or (isinstance(c.margin, (int, float)) and c.margin < 0)
+    if c.status != "warn" or not beyond:
+        return None
+    if details.get("rule_of_thumb"):
+        return "rule"
+    return details.get("limit_basis")
 
 
 def check_true(id, ok, source, message, **kw) -> Check:

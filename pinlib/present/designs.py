@@ -23,8 +23,16 @@ def _tail(s) -> str:
         message = s.error_here or s.error
         return M.DESIGN_NOT_LOADED.format(path=s.path, message=message) \
             .removeprefix(f"{s.path}: ")
+    return f"{_counts_text(s)} — {s.title}"
+
+
+def _counts_text(s) -> str:
+    """A checked design's counts: ``"26 pass, 23 warn (12 beyond ...), 0 fail"``."""
+    from pinlib.present.values import soft_words
+
     c = s.counts
-    return f"{c['pass']} pass, {c['warn']} warn, {c['fail']} fail — {s.title}"
+    return (f"{c['pass']} pass, {c['warn']} warn{soft_words({'soft': s.soft})}, "
+            f"{c['fail']} fail")
 
 
 def _fitted_summary(s, width: int, cols: int) -> list[str]:
@@ -41,15 +49,19 @@ def _fitted_summary(s, width: int, cols: int) -> list[str]:
         if len(line) <= cols:
             return [line]
     if s.error is None:
-        c = s.counts
-        essential = f"{c['pass']} pass, {c['warn']} warn, {c['fail']} fail"
+        essential = _counts_text(s)
         for pad in (width, 0):
             line = word + f"{s.path:<{pad}}  " + essential
             if len(line) + 2 <= cols:  # room for " …" at least
                 return [(line + tail[len(essential):])[:cols - 1].rstrip() + "…"]
         rest = "    " + tail
-        rest = rest if len(rest) <= cols else rest[:cols - 1].rstrip() + "…"
-        return _own_line(word, s.path, cols) + [rest]
+        if len(rest) <= cols:
+            return _own_line(word, s.path, cols) + [rest]
+        if len("    " + essential) + 2 <= cols:  # the title cut, the counts whole
+            return _own_line(word, s.path, cols) + [rest[:cols - 1].rstrip() + "…"]
+        # counts too long for a line (warnings beyond soft limits counted): wrapped whole,
+        # the title left to 'pinlib check DESIGN'
+        return _own_line(word, s.path, cols) + wrap(essential, cols, "    ", "    ")
     return _own_line(word, s.path, cols) + wrap(tail, cols, "    ", "    ", break_long=False)
 
 

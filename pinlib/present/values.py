@@ -9,7 +9,7 @@ from collections.abc import Mapping
 from pinlib.core import messages as M
 from pinlib.core.labels import figure_label, plural_s, shown_figures
 from pinlib.core.quantity import format_value
-from pinlib.model.result import BusResult, Check, DesignResult, Figure, figure_text
+from pinlib.model.result import BusResult, Check, DesignResult, Figure, figure_text, warns_beyond
 
 __all__ = ["format_value", "counts", "with_fix", "figure_cells", "assumed_cs",
            "assumed_cs_words", "SEARCH_BOUNDS",
@@ -181,19 +181,6 @@ def soft_words(n: dict) -> str:
     nothing."""
     soft = n.get("soft", 0)
     return f" ({soft} beyond a class's typical or an estimated limit)" if soft else ""
-
-
-def warns_beyond(c) -> str | None:
-    """Why a check beyond its limit (a negative margin, or a yes/no check's warning)
-    warns and does not fail: ``"rule"`` (a rule of thumb), or the basis of a limit no
-    datasheet states (``"generic"``, ``"estimate"``); None for any other check."""
-    details = c.details if isinstance(c.details, dict) else {}
-    beyond = c.margin is None or (isinstance(c.margin, (int, float)) and c.margin < 0)
-    if c.status != "warn" or not beyond:
-        return None
-    if details.get("rule_of_thumb"):
-        return "rule"
-    return details.get("limit_basis")
 
 
 #: An SPI peripheral's flights as its budget checks' ``details`` hold them (see

@@ -16,6 +16,7 @@ from pathlib import Path
 from pinlib.core.errors import PinlibError
 from pinlib.core.progress import progress_bar
 from pinlib.core.valueclass import value_class
+from pinlib.model.result import warns_beyond
 from pinlib.studies.designpaths import expand_designs
 
 __all__ = ["DesignSummary", "SwapSummary", "check_one", "check_many", "default_jobs",
@@ -35,6 +36,9 @@ class DesignSummary:
         The design's title (None when it could not be loaded).
     status : str
         ``pass``, ``warn``, ``fail``, or ``error`` (not loaded or not evaluated).
+    soft : int
+        Of the warnings, those beyond a class's typical or an estimated limit
+        (:func:`pinlib.model.result.warns_beyond`).
     counts : dict
         Checks by status (``pass``, ``warn``, ``fail``).
     error : str or None
@@ -64,6 +68,7 @@ class DesignSummary:
     title: str | None = None
     status: str = "error"
     counts: dict = field(default_factory=lambda: {"pass": 0, "warn": 0, "fail": 0})
+    soft: int = 0
     error: str | None = None
     error_here: str | None = None
     result: dict | None = None
@@ -101,6 +106,7 @@ def check_one(path, library_folders=(), against_snapshots: bool = False,
         for _, _, c in b.all_checks():
             if c.status in out.counts:
                 out.counts[c.status] += 1
+            out.soft += warns_beyond(c) in ("generic", "estimate")
     out.result = result.to_json()
     if against_snapshots:
         _against_snapshot(out, design, result, threshold)
