@@ -401,7 +401,7 @@ i_ol = { value = "10 mA", basis = "datasheet", source = "invented sheet, table 6
 
 
 def _mixed_sinks(tmp_path, pullup: str):
-    team_part(tmp_path / "team", "rtc-ds", "rtc-i2c", "clock", "datasheet", RTC_SINK)
+    team_part(tmp_path / "team", "rtc-recorded", "rtc-i2c", "clock", "datasheet", RTC_SINK)
     path = tmp_path / "mix.toml"
     path.write_text(HEAD + f"""
 [[bus]]
@@ -414,7 +414,7 @@ pullup = "{pullup}"
 trace = {{ length = "10 cm", capacitance = "1 pF/cm" }}
 devices = [
   {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
-  {{ ref = "U2", part = "rtc-ds" }},
+  {{ ref = "U2", part = "rtc-recorded" }},
 ]
 """, encoding="utf-8")
     return load_design(path, library_folders=_team(tmp_path))
@@ -424,7 +424,7 @@ devices = [
 def test_pullup_window_fails_below_a_firm_rp_min_though_the_largest_is_soft(
         tmp_path, pullup, want):
     # derived: UM10204 rev. 6 §7.1 eq. 2 at 3.465 V (3.3 V + 5 %): mcu-3v3's class sink
-    # (0.4 V at 8 mA, typical of its class) gives Rp(min) 383 Ω, soft; rtc-ds's datasheet
+    # (0.4 V at 8 mA, typical of its class) gives Rp(min) 383 Ω, soft; rtc-recorded's datasheet
     # sink (0.4 V at 10 mA, invented) 306.5 Ω, firm.  270 Ω at −1 % (267 Ω) is below
     # both: it fails against the firm bound; 330 Ω (327 Ω) is below the soft one only
     soft_min, firm_min = (3.465 - 0.4) / 8e-3, (3.465 - 0.4) / 10e-3
@@ -437,12 +437,12 @@ def test_pullup_window_fails_below_a_firm_rp_min_though_the_largest_is_soft(
         assert win.margin == pytest.approx(270 * 0.99 / firm_min - 1, rel=1e-9)
         assert "limit_basis" not in win.details
         assert win.details["rp_min_firm_driver"] == "U2"
-        assert "rtc-ds pins.sda.i_ol" in win.source and "datasheet" in win.source
+        assert "rtc-recorded pins.sda.i_ol" in win.source and "datasheet" in win.source
         assert "(datasheet), a firm limit" in win.message
     else:
         assert win.limit == pytest.approx(soft_min, rel=1e-9)
         assert win.details["limit_basis"] == "generic"
-    # the corners and the candidates at U2 (rtc-i2c's class sink beside rtc-ds) agree
+    # the corners and the candidates at U2 (rtc-i2c's class sink beside rtc-recorded) agree
     cr = whatif.corners(d)
     got = cr.find("i2c", "pullup-window", "SDA")
     assert got.status == want and got.margin == pytest.approx(win.margin, rel=1e-9)
