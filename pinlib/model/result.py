@@ -39,6 +39,9 @@ __all__ = [
     "soften",
     "warns_only",
     "warns_beyond",
+    "why_warns",
+    "softest",
+    "status_counts",
     "min_margin",
     "max_margin",
     "status_codes",
@@ -368,9 +371,15 @@ def soft_basis(*values) -> str | None:
     or None): ``"generic"`` where any of them is a class's typical value, else
     ``"estimate"`` where any is an estimate, else None (a datasheet, a measurement or a
     standard stands behind every one, or nothing says otherwise)."""
-    bases = {getattr(v, "rests_on", getattr(v, "basis", None)) for v in values
-             if v is not None and getattr(v, "soft", False)}
-    return "generic" if "generic" in bases else ("estimate" if bases else None)
+    return softest(getattr(v, "rests_on", getattr(v, "basis", None)) for v in values
+                   if v is not None and getattr(v, "soft", False))
+
+
+def softest(bases) -> str | None:
+    """The softest of soft bases: ``"generic"`` (a class's typical value) before
+    ``"estimate"``, either before none (None; anything else in ``bases`` is ignored). [1]"""
+    bases = set(bases)
+    return "generic" if "generic" in bases else ("estimate" if "estimate" in bases else None)
 
 
 def soft_limit(check: Check, *values, what: str = "value", owner: str | None = None) -> Check:
@@ -399,24 +408,36 @@ def soften(check: Check, basis: str | None, *, what: str = "value",
     return check
 
 
+def why_warns(check: Check) -> str | None:
+    """Why ``check`` warns where its margin would fail: ``"rule"`` (a rule of thumb,
+    :func:`rule_of_thumb`), or the basis of a limit no datasheet states (``"generic"``,
+    ``"estimate"``: :func:`soften`); None for a check that can fail. [1]"""
+    details = check.details if isinstance(check.details, dict) else {}
+    return "rule" if details.get("rule_of_thumb") else details.get("limit_basis")
+
+
 def warns_only(check: Check) -> bool:
-    """True when ``check`` warns where its margin would fail: a rule of thumb
-    (:func:`rule_of_thumb`) or a limit that rests on a soft value (:func:`soft_limit`).
-    The array paths (corners, Monte Carlo tables) cap its status at a warning."""
-    return bool(check.details.get("rule_of_thumb")) or "limit_basis" in check.details
+    """True when ``check`` warns where its margin would fail (:func:`why_warns`).  The
+    array paths (corners, Monte Carlo tables) cap its status at a warning."""
+    return why_warns(check) is not None
 
 
 def warns_beyond(c: Check) -> str | None:
-    """Why a check beyond its limit (a negative margin, or a yes/no check's warning)
-    warns and does not fail: ``"rule"`` (a rule of thumb), or the basis of a limit no
-    datasheet states (``"generic"``, ``"estimate"``); None for any other check."""
-    details = c.details if isinstance(c.details, dict) else {}
+    """:func:`why_warns` of a check that warns beyond its limit (a negative margin, or a
+    yes/no check's warning); None for any other check."""
     beyond = c.margin is None or (isinstance(c.margin, (int, float)) and c.margin < 0)
-    if c.status != "warn" or not beyond:
-        return None
-    if details.get("rule_of_thumb"):
-        return "rule"
-    return details.get("limit_basis")
+    return why_warns(c) if c.status == "warn" and beyond else None
+
+
+def status_counts(checks) -> dict[str, int]:
+    """``checks`` by status, ``{"pass": n, "warn": n, "fail": n}``, and ``"soft"``: the
+    warnings beyond a class's typical or an estimated limit (:func:`warns_beyond`),
+    which would fail against a datasheet's. [1]"""
+    out = {s: 0 for s in (*STATUSES, "soft")}
+    for c in checks:
+        out[c.status] += 1
+        out["soft"] += warns_beyond(c) in ("generic", "estimate")
+    return out
 
 
 def check_true(id, ok, source, message, **kw) -> Check:

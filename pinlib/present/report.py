@@ -27,18 +27,18 @@ from pinlib.model.result import (
     DesignResult,
     figure_text,
     margin_text,
+    warns_beyond,
     worst_order,
 )
 from pinlib.present.detail import detail_lines
 from pinlib.present.terminal import DEFAULT_WIDTH, status_word, wrap
 from pinlib.present.values import (
-    SOFT_TAGS,
     assumed_cs_words,
     counts,
     format_value,
     search_bound_words,
+    soft_tag,
     soft_words,
-    warns_beyond,
     with_fix,
 )
 from pinlib.present.visible import visible
@@ -76,7 +76,7 @@ def _against(c: Check) -> str:
     if not isinstance(c.limit, bool) and c.limit is not None:
         rel = _relation(c)
         text += f", limit {rel + ' ' if rel else ''}{format_value(c.limit, c.unit)}"
-        text += _soft_tag(c)
+        text += soft_tag(c)
     margin = margin_text(c)
     if margin:
         text += f", margin {margin}"
@@ -92,12 +92,6 @@ def _against(c: Check) -> str:
 REASON_TAGS = {"generic": "; a warning, the limit being a class's typical value",
                "estimate": "; a warning, the limit being an estimate",
                "rule": "; a warning, the limit being a rule of thumb"}
-
-
-def _soft_tag(c: Check) -> str:
-    """Why a check beyond its limit warns and does not fail: its limit is a class's
-    typical value, an estimate or a rule of thumb; else nothing."""
-    return SOFT_TAGS.get(warns_beyond(c) or "", "")
 
 
 def problem_line(bus: BusResult, where: str | None, signal: str | None, c: Check) -> str:

@@ -9,12 +9,20 @@ from collections.abc import Mapping
 from pinlib.core import messages as M
 from pinlib.core.labels import figure_label, plural_s, shown_figures
 from pinlib.core.quantity import format_value
-from pinlib.model.result import BusResult, Check, DesignResult, Figure, figure_text, warns_beyond
+from pinlib.model.result import (
+    BusResult,
+    Check,
+    DesignResult,
+    Figure,
+    figure_text,
+    status_counts,
+    warns_beyond,
+)
 
 __all__ = ["format_value", "counts", "with_fix", "figure_cells", "assumed_cs",
            "assumed_cs_words", "SEARCH_BOUNDS",
            "search_bound_words", "limit_side", "FLIGHTS", "FLIGHT_HEAD", "flight_rows",
-           "SOFT_TAGS", "soft_words", "warns_beyond", "check_cells"]
+           "SOFT_TAGS", "soft_tag", "soft_words", "check_cells"]
 
 #: Figures a search gives (a coupling's), with the figure of the search's own bound and
 #: the words a result at that bound takes: there the search found no end, so "18 µm"
@@ -108,9 +116,16 @@ _COMPARED = {
 
 #: Beside a limit that a check beyond it only warns against: no datasheet stands behind
 #: it (:func:`pinlib.model.result.soften`, by its basis), or it is a rule of thumb
-#: (:func:`pinlib.model.result.rule_of_thumb`); :func:`warns_beyond` says which.
+#: (:func:`pinlib.model.result.rule_of_thumb`); :func:`pinlib.model.result.warns_beyond`
+#: says which.
 SOFT_TAGS = {"generic": " (a class's typical value)", "estimate": " (an estimate)",
              "rule": " (a rule of thumb)"}
+
+
+def soft_tag(c: Check) -> str:
+    """Beside the limit of a check beyond it that only warns, why (:data:`SOFT_TAGS`);
+    else nothing."""
+    return SOFT_TAGS.get(warns_beyond(c) or "", "")
 
 
 def check_cells(c: Check, *, answer: bool = False, why: bool = False) -> tuple[str, str]:
@@ -131,7 +146,7 @@ def check_cells(c: Check, *, answer: bool = False, why: bool = False) -> tuple[s
         return ("yes" if c.value else "no") if answer else "", ""
     limit = "" if isinstance(c.limit, bool) else format_value(c.limit, c.unit)
     if limit and why:  # why a check beyond it only warns
-        limit += SOFT_TAGS.get(warns_beyond(c) or "", "")
+        limit += soft_tag(c)
     return format_value(c.value, c.unit), limit
 
 
@@ -163,16 +178,9 @@ def with_fix(text: str, c: Check) -> str:
 
 
 def counts(result: DesignResult) -> dict[str, int]:
-    """Checks by status over the whole design: {"pass": n, "warn": n, "fail": n}, and
-    ``"soft"``: the warnings beyond a limit that no datasheet states (a class's typical
-    value, an estimate: :func:`warns_beyond`), which would fail against a datasheet's."""
-    out = {s: 0 for s in ("pass", "warn", "fail", "soft")}
-    for b in result.results():
-        for _, _, c in b.all_checks():
-            out[c.status] = out.get(c.status, 0) + 1
-            if warns_beyond(c) in ("generic", "estimate"):
-                out["soft"] += 1
-    return out
+    """Checks by status over the whole design, and the warnings beyond a class's typical
+    or an estimated limit (:func:`pinlib.model.result.status_counts`)."""
+    return status_counts(c for b in result.results() for _, _, c in b.all_checks())
 
 
 def soft_words(n: dict) -> str:

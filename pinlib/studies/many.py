@@ -16,7 +16,7 @@ from pathlib import Path
 from pinlib.core.errors import PinlibError
 from pinlib.core.progress import progress_bar
 from pinlib.core.valueclass import value_class
-from pinlib.model.result import warns_beyond
+from pinlib.model.result import status_counts
 from pinlib.studies.designpaths import expand_designs
 
 __all__ = ["DesignSummary", "SwapSummary", "check_one", "check_many", "default_jobs",
@@ -102,11 +102,9 @@ def check_one(path, library_folders=(), against_snapshots: bool = False,
         out.error, out.error_here = err.message, err.message_in(path)
         return out
     out.status = result.status
-    for b in result.results():
-        for _, _, c in b.all_checks():
-            if c.status in out.counts:
-                out.counts[c.status] += 1
-            out.soft += warns_beyond(c) in ("generic", "estimate")
+    n = status_counts(c for b in result.results() for _, _, c in b.all_checks())
+    out.counts = {s: n[s] for s in out.counts}
+    out.soft = n["soft"]
     out.result = result.to_json()
     if against_snapshots:
         _against_snapshot(out, design, result, threshold)

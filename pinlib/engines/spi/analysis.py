@@ -32,7 +32,7 @@ from pinlib.engines.spi.modes import (
     spi_mode,
 )
 from pinlib.model.design import Bus, Design, Device
-from pinlib.model.result import soft_basis
+from pinlib.model.result import soft_basis, softest
 
 
 @value_class
@@ -220,9 +220,7 @@ def _level_state(lines: dict, ref: str, signals) -> str | None:
             if (c.id in ("level-high", "level-low") and c.margin is not None
                     and c.margin < 0 and (c.subject or "").split(" ")[0] == ref):
                 states.add(c.details.get("limit_basis") or "firm")
-    if "firm" in states:
-        return "firm"
-    return "generic" if "generic" in states else ("estimate" if states else None)
+    return "firm" if "firm" in states else softest(states)
 
 
 #: The timing values a budget term or clock limit takes from a part.

@@ -14,6 +14,7 @@ from pinlib.engines.pushline import (
     Flight,
 )
 from pinlib.engines.spi.modes import CS_ASSUMED, SpiMode
+from pinlib.model.result import softest
 
 #: The flights a peripheral's budget keeps per edge direction (``{"rise", "fall"}``);
 #: the others are one flight over both edges.
@@ -252,10 +253,7 @@ def _levels(*states) -> str | None:
     involves (``analysis._level_state``: ``"firm"``, a soft basis or None): firm (None)
     where any is firm, else the softest basis (a class's typical value before an
     estimate), else None."""
-    if "firm" in states:
-        return None
-    return "generic" if "generic" in states else ("estimate" if "estimate" in states
-                                                  else None)
+    return None if "firm" in states else softest(states)
 
 
 def _or0(x):

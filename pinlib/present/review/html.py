@@ -26,7 +26,6 @@ from pinlib.present.review.text import (
     _STATUS_WORD,
     _bus_counts,
     _check_cells,
-    _counts,
     _flights_caption,
     _groups,
     _heading,
@@ -35,7 +34,7 @@ from pinlib.present.review.text import (
     _no_snapshot_text,
     _route_of,
 )
-from pinlib.present.values import FLIGHT_HEAD, figure_cells, flight_rows, soft_words
+from pinlib.present.values import FLIGHT_HEAD, counts, figure_cells, flight_rows, soft_words
 
 _CSS = """\
 :root{--ink:#111;--muted:#4a4a4a;--rule:#c8c8c8;--head:#eef0f2}
@@ -115,7 +114,7 @@ class _Html:
     def page(self) -> str:
         r = self.r
         res = r.result
-        counts = _counts(res)
+        tally = counts(res)
         title = f"Design review: {res.design}"
         self.w("<!DOCTYPE html>", '<html lang="en">', "<head>", '<meta charset="utf-8">',
                '<meta name="viewport" content="width=device-width, initial-scale=1">',
@@ -130,8 +129,8 @@ class _Html:
         if desc:
             self.w(f'<p class="meta">{_e(desc)}</p>')
         self.w(f'<p class="meta">Overall: {_badge(res.status)} the design '
-               f"{_e(_STATUS_WORD[res.status])} — {counts['pass']} checks pass, "
-               f"{counts['warn']} warn{_e(soft_words(counts))}, {counts['fail']} fail "
+               f"{_e(_STATUS_WORD[res.status])} — {tally['pass']} checks pass, "
+               f"{tally['warn']} warn{_e(soft_words(tally))}, {tally['fail']} fail "
                "(warning below "
                f"{format_si(res.warn_margin, '%')} margin; {_e(M.RATING_NO_WARN_BAND)}).</p>",
                "</header>")

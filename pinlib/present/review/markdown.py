@@ -28,7 +28,6 @@ from pinlib.present.review.text import (
     _STATUS_WORD,
     _bus_counts,
     _check_cells,
-    _counts,
     _flights_caption,
     _groups,
     _heading,
@@ -36,7 +35,7 @@ from pinlib.present.review.text import (
     _message,
     _route_of,
 )
-from pinlib.present.values import FLIGHT_HEAD, figure_cells, flight_rows, soft_words
+from pinlib.present.values import FLIGHT_HEAD, counts, figure_cells, flight_rows, soft_words
 
 # Every user-written text (titles, ids, descriptions, sources, part values, paths) goes
 # through _mt: one line (newlines and runs of spaces become one space), the characters
@@ -198,7 +197,7 @@ class _Markdown:
 
     def page(self) -> tuple[str, dict[str, str]]:
         r, res = self.r, self.r.result
-        counts = _counts(res)
+        tally = counts(res)
         self.w(*_heading_lines("#", f"Design review: {res.design}"),
                *_wrapped(f"**Caution.** {_mt(CAUTION)}", "> ", "> "), "")
         if res.path:
@@ -208,8 +207,8 @@ class _Markdown:
             self.w(*_wrapped(_mt(desc)), "")
         self.w(*_wrapped(
             f"**Overall: {_MARK[res.status]}** — the design {_STATUS_WORD[res.status]}: "
-            f"{counts['pass']} checks pass, {counts['warn']} warn{soft_words(counts)}, "
-            f"{counts['fail']} fail "
+            f"{tally['pass']} checks pass, {tally['warn']} warn{soft_words(tally)}, "
+            f"{tally['fail']} fail "
             f"(warning below {format_si(res.warn_margin, '%')} margin; "
             f"{M.RATING_NO_WARN_BAND})."), "")
         self.w("## Summary", "")

@@ -4,10 +4,10 @@ cells, the groups of a bus in report order, the sentence for a design with no sn
 from __future__ import annotations
 
 from pinlib.core import messages as M
-from pinlib.model.result import BusResult, Check, margin_text
+from pinlib.model.result import BusResult, Check, margin_text, status_counts
 from pinlib.present.report import format_value
 from pinlib.present.review.draw import _slug
-from pinlib.present.values import check_cells, counts, with_fix
+from pinlib.present.values import check_cells, with_fix
 
 _MARK = {"pass": "PASS", "warn": "WARN", "fail": "FAIL"}
 _STATUS_WORD = {"pass": "passes",
@@ -44,15 +44,9 @@ def _heading(b) -> str:
     return f"Bus {b.id} ({b.protocol})"
 
 
-#: Checks by status over the design, and the warnings beyond a soft limit.
-_counts = counts
-
-
 def _bus_counts(b: BusResult) -> dict:
-    counts = {s: 0 for s in ("pass", "warn", "fail")}
-    for _, _, c in b.all_checks():
-        counts[c.status] += 1
-    return counts
+    """A bus's checks by status (:func:`pinlib.model.result.status_counts`)."""
+    return status_counts(c for _, _, c in b.all_checks())
 
 
 def _groups(b: BusResult):

@@ -14,15 +14,16 @@ import re
 
 from pinlib.core import labels
 from pinlib.core.errors import PinlibError
-from pinlib.model.result import CAUTION, BusResult, Group, figure_text, margin_text
-from pinlib.present import charts
-from pinlib.present.values import (
-    check_cells,
-    limit_side,
-    search_bound_words,
-    soft_words,
-    warns_beyond,
+from pinlib.model.result import (
+    CAUTION,
+    BusResult,
+    Group,
+    figure_text,
+    margin_text,
+    status_counts,
 )
+from pinlib.present import charts
+from pinlib.present.values import check_cells, limit_side, search_bound_words, soft_words
 
 STATUS_TEXT = {"pass": "PASS", "warn": "WARN", "fail": "FAIL"}
 _BORDER = "border:1px solid #c8c8c8;padding:1px 6px;vertical-align:top"
@@ -156,14 +157,10 @@ def notes_html(groups: list[Group], notes: list[str] | None = None) -> str:
 def status_line(result: BusResult, what: str) -> str:
     """A bus's status and its checks' counts, with the warnings beyond a class's typical
     or an estimated limit (:func:`pinlib.present.values.soft_words`)."""
-    counts = {s: 0 for s in STATUS_TEXT}
-    soft = 0
-    for _, _, c in result.all_checks():
-        counts[c.status] += 1
-        soft += warns_beyond(c) in ("generic", "estimate")
+    counts = status_counts(c for _, _, c in result.all_checks())
     return (f'<div style="{BLOCK};font-size:14px;margin:2px 0">{e(what)}: '
             f"{badge(result.status)} {counts['pass']} pass, {counts['warn']} warn"
-            f"{e(soft_words({'soft': soft}))}, {counts['fail']} fail</div>")
+            f"{e(soft_words(counts))}, {counts['fail']} fail</div>")
 
 
 def caution_html() -> str:

@@ -14,6 +14,7 @@ from pinlib.engines import ppbatch as ppb
 from pinlib.engines import pptable
 from pinlib.engines.opendrain import batch as ob
 from pinlib.model.design import Design
+from pinlib.model.result import why_warns
 from pinlib.studies.whatif.checknames import _names, _not_sampled
 from pinlib.studies.whatif.couplingmc import CouplingRun, coupling_parameters
 from pinlib.studies.whatif.mcresult import McCheck, McResult
@@ -253,17 +254,9 @@ def _bus_checks(bus_id: str, st: _Tally, fits: list, n: int, kept: int) -> list[
             warns=int(st.warns[j]), fails=int(st.fails[j]), absent=int(st.absent[j]),
             margin_unit=ec.margin_unit if ec is not None else None,
             low=st.extreme(j, 0), high=st.extreme(j, 1), worst_board=st.worst_board(j),
-            sampled=kept, histogram=st.hist[j], warns_only=_warns_only(ec)))
+            sampled=kept, histogram=st.hist[j],
+            warns_only=why_warns(ec) if ec is not None else None))
     return checks
-
-
-def _warns_only(ec) -> str | None:
-    """Why the engine's check ``ec`` warns where its margin would fail (a rule of thumb,
-    a soft limit's basis), or None. [1]"""
-    if ec is None:
-        return None
-    details = ec.details if isinstance(ec.details, dict) else {}
-    return "rule" if details.get("rule_of_thumb") else details.get("limit_basis")
 
 
 def _run_notes(run: _Run, n: int) -> list[str]:
