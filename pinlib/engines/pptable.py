@@ -248,8 +248,8 @@ class LineTable:
                 mg, low = supply_margin(rail, rail, lo, hi)
                 margin[j], value[j], limit[j] = mg, rail, np.where(low, lo, hi)
                 # beyond a soft end of the range at most a warning (model.result.soft_limit)
-                status[j] = np.where(np.where(low, *soft), np.minimum(status_codes(mg, 0.0), 1),
-                                     status_codes(mg, 0.0))
+                codes = status_codes(mg, 0.0)
+                status[j] = np.where(np.where(low, *soft), np.minimum(codes, 1), codes)
             elif kind == "line":
                 _, sig, slots, margin_rule, code = plan
                 vals = got[sig]

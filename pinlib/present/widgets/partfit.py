@@ -93,20 +93,15 @@ def unfit_on_bus(part, *, protocol: str, mode: str, supply: float, tolerance: fl
     return out
 
 
-def _firm(unfit: list[Unfit]) -> bool:
-    """Whether any of ``unfit`` is against a firm limit (the engine's check fails)."""
-    return any(u.soft is None for u in unfit)
-
-
 def unfit_label(label: str, unfit: list[Unfit]) -> str:
     """A part's option with what it would fail ("… — fails here: up to 100 kHz"), then
     what it would only warn on ("; warns: supply 4.5 V–5.5 V"), or "… — warns here: ..."
     where every such limit is soft."""
     if not unfit:
         return label
-    if not _firm(unfit):
-        return f"{label} — warns here: " + "; ".join(u.short for u in unfit)
     firm, soft = _split(unfit)
+    if not firm:
+        return f"{label} — warns here: " + "; ".join(u.short for u in unfit)
     text = f"{label} — fails here: " + "; ".join(u.short for u in firm)
     return text + ("; warns: " + "; ".join(u.short for u in soft) if soft else "")
 
@@ -121,12 +116,11 @@ def unfit_sentence(pid: str, unfit: list[Unfit]) -> str:
     """The line under the list for the part picked (plain text; empty when it fits)."""
     if not unfit:
         return ""
-    checks = ", ".join(u.check for u in unfit)
-    if not _firm(unfit):
-        return (M.UNFIT_SOFT.format(part=pid, checks=checks)
+    firm, soft = _split(unfit)
+    if not firm:
+        return (M.UNFIT_SOFT.format(part=pid, checks=", ".join(u.check for u in unfit))
                 + "; ".join(u.reason for u in unfit) + ".")
     # which checks would fail and which would only warn (a class's typical value)
-    firm, soft = _split(unfit)
     text = (M.UNFIT_FIRM.format(part=pid, checks=", ".join(u.check for u in firm))
             + "; ".join(u.reason for u in firm))
     if soft:
