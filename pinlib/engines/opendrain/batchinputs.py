@@ -18,7 +18,7 @@ import numpy as np
 from pinlib.core.quantity import Threshold
 from pinlib.core.valueclass import value_class
 from pinlib.engines.limits import OpenDrainLimits
-from pinlib.engines.opendrain.inputs import _offset_side, low_end
+from pinlib.engines.opendrain.inputs import _offset_side, firm_sink, low_end
 from pinlib.engines.opendrain.rules import (
     _NOT_RECEIVERS,
     SIGNALS,
@@ -183,10 +183,9 @@ def rp_min_rests_on(li, v_max: float) -> list:
         tying = [d for d, r in zip(li.drivers, bounds, strict=True) if best > 0 and r == best]
     values = []
     for d in tying:
-        soft = [x for x in (d.v_ol_value, d.i_ol_value) if _soft(x)]
-        if not soft:
+        if firm_sink(d):
             return []
-        values += soft
+        values += [x for x in (d.v_ol_value, d.i_ol_value) if _soft(x)]
     return values
 
 

@@ -198,7 +198,7 @@ class LineInputs:
     #: fastest rise's, :data:`cb` being every contribution at its maximum. [F]
     cb_low: float = math.nan
     #: The largest Rp(min) of the drivers whose sink point is firm (a datasheet's, the
-    #: specification's), the driver and its label (``(1e-3, None, "")`` for none): where
+    #: specification's), the driver and its label (``(0.0, None, "")`` for none): where
     #: the pull-up is below it, the window fails against it even where Rp(min) rests on
     #: a soft sink (a class's typical one) and only warns. [Ω]
     rp_min_firm: tuple = (0.0, None, "")
