@@ -266,8 +266,7 @@ def term_check(t: Term, clock: float, warn: float, mode: int) -> Check:
         if status == "fail" and not t.assumed:
             fix = _timing_fix(t, avail, t.required)
         if status == "warn":  # short of a 0 the part does not record: no limit to fail
-            field = next(k for k in _REQUIRED_FIELDS if k in t.parts)
-            fix = (f"record the part's {_REQUIRED_FIELDS[field]} from its datasheet, or "
+            fix = (f"record the part's {_required_field(t)} from its datasheet, or "
                    "give the path more time")
             message += (f"; {_fmt(-slack, 's')} short of 0, which is taken for a "
                         "requirement the part does not record: a warning, not a failure")
@@ -280,14 +279,13 @@ def term_check(t: Term, clock: float, warn: float, mode: int) -> Check:
                                                      what=CS_ASSUMED[t.assumed][0])
         chk.fix = assumed_fix if chk.fix is None else f"{chk.fix}; {assumed_fix}"
     # a requirement no datasheet or standard stands behind: no failure either (Term.codes)
-    return soften(chk, t.soft, what=_SOFT_WHAT.get(t.id, "timing value"),
-                  owner=t.owner)
+    return soften(chk, t.soft, what=_required_field(t), owner=t.owner)
 
 
-#: The value a term's requirement is, for the fix of a soft one (:func:`soften`).
-_SOFT_WHAT = {"copi-setup": "t_setup", "copi-hold": "t_hold", "cipo-setup": "t_setup",
-              "cipo-hold": "t_hold", "cs-setup": "t_cs_setup", "cs-hold": "t_cs_hold",
-              "cipo-first-bit": "t_setup", "sclk-high": "t_high", "sclk-low": "t_low"}
+def _required_field(t: Term) -> str:
+    """The part field a term's requirement is (``t_setup``, ``t_cs_hold``...), found
+    among its parts by :data:`_REQUIRED_FIELDS`. [1]"""
+    return _REQUIRED_FIELDS[next(k for k in _REQUIRED_FIELDS if k in t.parts)]
 
 
 def _timing_fix(t: Term, avail: float, passing: float) -> str:
