@@ -159,6 +159,8 @@ def test_the_exit_status_follows(tmp_path, monkeypatch, capsys):
     flat = " ".join(out.split())
     assert "FAIL" not in out and "not its datasheet's" in flat   # spi-mode's message
     # a check beyond a class's limit says beside the limit why it only warns
+    # 120 MHz: the design's clock (invented); 104 MHz: nor-flash-spi's f_max
+    # (pinlib/devices/memory/nor-flash-spi.toml, common practice, no source)
     assert "WARN s U2: Clock ≤ f(max) 120 MHz, limit ≤ 104 MHz (a class's typical value)," in flat
     assert "Edge time" in flat and "(a rule of thumb), margin -" in flat
     assert max(len(line) for line in out.splitlines()) <= 80
@@ -196,6 +198,7 @@ def test_the_monte_carlo_tables_agree_with_the_engine(tmp_path):
         assert ("warns on 40 (a class's typical limit)" in said) is (basis is None)
     assert fails[None] and all(n == 0 for n in fails[None].values())
     assert fails["datasheet"].keys() == fails[None].keys()
+    # every one of the 40 boards drawn fails (the margins are far below 0 on each)
     assert all(n == 40 for n in fails["datasheet"].values())
 
 
@@ -281,6 +284,7 @@ def test_the_review_tables_say_why_beside_the_limit(tmp_path, monkeypatch):
     _checks(tmp_path, None)
     assert main(["report", str(tmp_path / "d.toml"), "--md", str(tmp_path / "r.md")]) == 0
     text = (tmp_path / "r.md").read_text("utf-8")
+    # the design's clock against nor-flash-spi's f_max (common practice, no source)
     assert "| 120 MHz | 104 MHz (a class's typical value) |" in text
     assert "the design warns (" in " ".join(text.split())
 
