@@ -674,6 +674,47 @@ def test_monte_carlo_says_on_how_many_boards_a_passing_check_warned(capsys, monk
     assert not any("warns on" in ln for ln in out.splitlines() if "Supply range" in ln)
 
 
+def test_the_yields_count_the_passing_boards_that_warn(capsys, monkeypatch):
+    # "all sampled buses pass on 100.00% (200/200)" read as a clean bill beside a gate
+    # drive that warns on every board; the yields now say how many of the passing
+    # boards warn, per bus and for the board, in the text, the JSON and the review
+    monkeypatch.setenv("COLUMNS", "400")
+    assert main(["check", str(DEMO), "--monte-carlo", "200", "--seed", "1", "--json"]) == 0
+    mc = json.loads(capsys.readouterr().out)["monte_carlo"]
+    by_bus: dict = {}
+    for c in mc["checks"]:
+        by_bus.setdefault(c["bus"], []).append(c)
+        assert c["pass"]["warned"] == c["warns"]  # a check's own passing boards that warn
+    for bus, y in mc["buses"].items():
+        most = max(c["warns"] for c in by_bus[bus])
+        # every board passes on these buses, so the boards that warn are at least those of
+        # the check that warns most and at most all of its checks' together
+        assert y["passes"] == 200
+        assert most <= y["warned"] <= min(200, sum(c["warns"] for c in by_bus[bus]))
+    gate = next(c for c in mc["checks"] if c["id"] == "bridge-gate-drive")
+    assert gate["warns"] == 200 and mc["buses"][gate["bus"]]["warned"] == 200
+    assert mc["board"] == {**mc["board"], "passes": 200, "warned": 200}
+    assert main(["check", str(DEMO), "--monte-carlo", "200", "--seed", "1"]) == 0
+    out = capsys.readouterr().out
+    # 98.12 %: the Wilson score interval's lower bound for 200 of 200 at 95 %,
+    # 200 / (200 + 1.96²) (published: E. B. Wilson, JASA 22 (1927), the score interval)
+    assert "all sampled buses pass on 100.00% [98.12%, 100.00%] (200/200), 200 of them " \
+           "with a warning" in out
+    assert f"bus {gate['bus']}: 100.00% [98.12%, 100.00%] (200/200), 200 with a warning" \
+        in out
+    quiet = [b for b, y in mc["buses"].items() if y["warned"] == 0]
+    for b in quiet:  # a bus with no warning says nothing of warnings
+        kind = "coupling" if "<-" in b else "bus"
+        assert f"{kind} {b}: 100.00% [98.12%, 100.00%] (200/200)\n" in out
+    from pinlib.present.review.montecarlo import _mc_summary
+
+    said = _mc_summary(whatif.monte_carlo(load_design(DEMO), 200, seed=1))
+    assert "Every sampled bus passes on 100.00% (98.12% to 100.00%, 200/200) of the " \
+           "boards, 200 of them with a warning." in said
+    assert f"Bus {gate['bus']}: no check fails on 100.00% (98.12% to 100.00%, 200/200), " \
+           "200 of them with a warning." in said
+
+
 def test_margin_order_keeps_volts_after_fractions_and_places_missing_margins():
     # one order for the Monte Carlo rows, the corners and the report's charts: a margin
     # in volts (+0.05 V) is never ranked below a fraction of a limit (+0.30), however

@@ -157,10 +157,12 @@ def _mc_summary(mc) -> list[str]:
         out.append(f"Pass fractions with {format_si(float(conf), '%')} {method}s.")
     board = _get(mc, "board")
     if board is not None and hasattr(board, "fraction"):
-        out.append(f"Every sampled bus passes on {_yield(board)} of the boards.")
+        out.append(f"Every sampled bus passes on {_yield(board)} of the boards"
+                   f"{board.warned_text()}.")
     for bus, y in (_get(mc, "buses") or {}).items():
         if hasattr(y, "fraction"):
-            out.append(f"Bus {bus}: every check passes on {_yield(y)}.")
+            says = "no check fails" if y.warned else "every check passes"
+            out.append(f"Bus {bus}: {says} on {_yield(y)}{y.warned_text()}.")
     out += [str(x) for x in (_get(mc, "notes") or [])]
     return out
 

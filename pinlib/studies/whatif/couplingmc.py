@@ -44,11 +44,13 @@ class CouplingRun:
                     self.tables[c.id] = cb.CouplingTable.solve(c, self.nominal[c.id], span,
                                                                _FLOOR)
         self.stores: dict[str, _Tally] = {}
+        self.last_warn = None  # the last chunk's boards on which some coupling warns
         self.index = {p.key: (i, p.tolerance) for i, p in enumerate(params)}
 
     def add_chunk(self, u, start: int, m: int):
-        """Count one chunk; the boards on which every coupling passes (None: none)."""
-        ok = None
+        """Count one chunk; the boards on which every coupling passes (None: none), and
+        those on which some coupling warns in :attr:`last_warn`."""
+        ok = warn = None
         for c in self.couplings:
             if c.id not in self.tables:
                 continue
@@ -63,4 +65,6 @@ class CouplingRun:
                 st = self.stores[c.id] = _Tally(bb.names, bb, self.kept)
             got = st.add(bb, start, m)
             ok = got if ok is None else ok & got
+            warn = st.last_warn if warn is None else warn | st.last_warn
+        self.last_warn = warn
         return ok

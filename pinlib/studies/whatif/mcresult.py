@@ -222,9 +222,11 @@ class McResult:
         else:
             lines.append("  no toleranced parameter: every board is the nominal one")
         if self.board is not None:
-            lines.append(f"  all sampled buses pass on {_pct(self.board)}")
+            lines.append(f"  all sampled buses pass on {_pct(self.board)}"
+                         f"{self.board.warned_text()}")
         for bus, y in self.buses.items():  # a coupling's id holds "<-"
-            lines.append(f"  {'coupling' if '<-' in bus else 'bus'} {bus}: {_pct(y)}")
+            lines.append(f"  {'coupling' if '<-' in bus else 'bus'} {bus}: {_pct(y)}"
+                         f"{y.warned_text('')}")
         # a check that warns on some board is a row, whatever its margin does: it must
         # never be counted among those that pass on every board (a yes/no ringing check
         # has no margin to vary and warns on half the boards)

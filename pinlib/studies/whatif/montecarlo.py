@@ -124,9 +124,10 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
         if st is not None:
             fits = _sensitivities(uc_kept, st.margin, cparams)
             checks += _bus_checks(c.id, st, fits, n, kept)
-            buses[c.id] = Yield(st.bus_ok, n, wilson_interval(st.bus_ok, n))
+            buses[c.id] = _yield(st, n)
     stored = run.stores or crun.stores
-    board = Yield(run.board_ok, n, wilson_interval(run.board_ok, n)) if stored else None
+    board = (Yield(run.board_ok, n, wilson_interval(run.board_ok, n), run.board_warned)
+             if stored else None)
     return McResult(design.title, n, int(ss.entropy), design.distribution, params + cparams,
                     checks, buses, board, np.hstack([u_kept, uc_kept]), _run_notes(run, n))
 
@@ -157,6 +158,7 @@ class _Run:
         self.params, self.kept = params, kept
         self.stores: dict[str, _Tally] = {}
         self.board_ok = 0
+        self.board_warned = 0  # of those, boards on which some check warns
         # Push-pull buses: one table per bus for the whole run (pinlib.engines.pptable); a
         # normal draw is covered to 4σ (4/3 of the tolerance), boards beyond by the engine.
         self.tables: dict = {}
@@ -179,7 +181,7 @@ class _Run:
     def add_chunk(self, u: np.ndarray, start: int, m: int) -> None:
         """Evaluate and count the boards ``start .. start + m``, drawn as ``u``."""
         scen = Sampled(u, self.params)
-        chunk_ok = None
+        chunk_ok = chunk_warn = None
         for bus in self.design.buses:
             bb = self._batch(bus, scen, m)
             if bb is None:
@@ -190,10 +192,12 @@ class _Run:
                                                   self.kept)
             ok = st.add(bb, start, m)
             chunk_ok = ok if chunk_ok is None else chunk_ok & ok
+            chunk_warn = st.last_warn if chunk_warn is None else chunk_warn | st.last_warn
             del bb
         if chunk_ok is not None:
             self.board_ok += int(np.count_nonzero(chunk_ok))
-        self._last_ok = chunk_ok
+            self.board_warned += int(np.count_nonzero(chunk_ok & chunk_warn))
+        self._last_ok, self._last_warn = chunk_ok, chunk_warn
 
     def add_coupling_chunk(self, crun: CouplingRun, uc: np.ndarray, start: int,
                            m: int) -> None:
@@ -202,10 +206,13 @@ class _Run:
         ok = crun.add_chunk(uc, start, m)
         if ok is None:
             return
-        if self.stores:  # take the chunk's coupling failures off the boards counted
-            self.board_ok -= int(np.count_nonzero(self._last_ok & ~ok))
-        else:
-            self.board_ok += int(np.count_nonzero(ok))
+        warn = crun.last_warn
+        if self.stores:  # count the chunk's boards again with their couplings
+            self.board_ok -= int(np.count_nonzero(self._last_ok))
+            self.board_warned -= int(np.count_nonzero(self._last_ok & self._last_warn))
+            ok, warn = ok & self._last_ok, warn | self._last_warn
+        self.board_ok += int(np.count_nonzero(ok))
+        self.board_warned += int(np.count_nonzero(ok & warn))
 
     def _batch(self, bus, scen: Sampled, m: int):
         """One chunk of a bus evaluated as a batch; None for a bus the run does not sample."""
@@ -235,8 +242,13 @@ def _checks_and_yields(run: _Run, u_kept: np.ndarray, n: int) -> tuple[list, dic
             continue
         fits = _sensitivities(u_kept, st.margin, run.params)
         checks += _bus_checks(bus.id, st, fits, n, run.kept)
-        buses[bus.id] = Yield(st.bus_ok, n, wilson_interval(st.bus_ok, n))
+        buses[bus.id] = _yield(st, n)
     return checks, buses
+
+
+def _yield(st: _Tally, n: int) -> Yield:
+    """The boards on which every check a tally counts passes, of ``n``."""
+    return Yield(st.bus_ok, n, wilson_interval(st.bus_ok, n), st.bus_warned)
 
 
 def _bus_checks(bus_id: str, st: _Tally, fits: list, n: int, kept: int) -> list[McCheck]:
@@ -250,7 +262,7 @@ def _bus_checks(bus_id: str, st: _Tally, fits: list, n: int, kept: int) -> list[
             name["name"], bus_id, name["segment"], signal, cid, unit,
             ec.source if ec is not None else "", ec.status if ec is not None else None,
             ec.margin if ec is not None else None,
-            Yield(passes, n, wilson_interval(passes, n)), mg, val, sens, r2,
+            Yield(passes, n, wilson_interval(passes, n), int(st.warns[j])), mg, val, sens, r2,
             warns=int(st.warns[j]), fails=int(st.fails[j]), absent=int(st.absent[j]),
             margin_unit=ec.margin_unit if ec is not None else None,
             low=st.extreme(j, 0), high=st.extreme(j, 1), worst_board=st.worst_board(j),

@@ -84,6 +84,8 @@ class _Tally:
         self.warns = np.zeros(k, dtype=np.int64)
         self.absent = np.zeros(k, dtype=np.int64)
         self.bus_ok = 0
+        self.bus_warned = 0     # of those, boards on which some check warns
+        self.last_warn = None   # the last chunk's boards on which some check warns
         # per check: lowest and highest finite margin, and the boards they came from
         self.ext = np.full((k, 2), np.nan)
         self.at = np.full((k, 2), -1, dtype=np.int64)
@@ -91,14 +93,17 @@ class _Tally:
 
     def add(self, bb, start: int, m: int) -> np.ndarray:
         """Count one chunk of boards ``start .. start + m``; its boards where every check
-        passes."""
+        passes (those where some check warns: :attr:`last_warn`)."""
         ok = np.ones(m, dtype=bool)
+        warn = np.zeros(m, dtype=bool)
         take = max(0, min(m, self.kept - start))
         for j, (_, c) in enumerate(bb.checks()):
             fail = c.status == 2
             ok &= ~fail
             self.fails[j] += int(np.count_nonzero(fail))
-            self.warns[j] += int(np.count_nonzero(c.status == 1))
+            warned = c.status == 1
+            warn |= warned
+            self.warns[j] += int(np.count_nonzero(warned))
             if take:
                 if c.margin is not None:
                     self.margin[j][start:start + take] = c.margin[:take]
@@ -110,6 +115,8 @@ class _Tally:
                 self._extremes(j, mg, start)
                 self.hist[j].add(mg)
         self.bus_ok += int(np.count_nonzero(ok))
+        self.bus_warned += int(np.count_nonzero(ok & warn))
+        self.last_warn = warn
         return ok
 
     def _extremes(self, j: int, mg: np.ndarray, start: int) -> None:

@@ -70,11 +70,13 @@ def wilson_interval(passes: int, n: int, confidence: float = CONFIDENCE) -> tupl
 
 @value_class
 class Yield:
-    """Boards that pass, of all drawn, with the Wilson interval."""
+    """Boards that pass, of all drawn, with the Wilson interval; ``warned``: of those
+    that pass, the boards on which some check warns (a warning passes)."""
 
     passes: int
     n: int
     interval: tuple[float, float]
+    warned: int = 0
 
     @property
     def fraction(self) -> float:
@@ -82,7 +84,14 @@ class Yield:
 
     def to_json(self) -> dict:
         return {"passes": self.passes, "n": self.n, "fraction": self.fraction,
-                "interval": list(self.interval)}
+                "interval": list(self.interval), "warned": self.warned}
+
+    def warned_text(self, of: str = " of them") -> str:
+        """What follows the yield where boards that pass warn: ", 40 of them with a
+        warning"; empty where none does."""
+        if not self.warned:
+            return ""
+        return f", {self.warned:,}{of} with a warning"
 
 
 def percent_text(x: float) -> str:
