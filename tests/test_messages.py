@@ -832,6 +832,43 @@ def _(env):
     return _disagreeing(env).message
 
 
+#: An output whose r_out (60 Ω) its own edge point (1.5 ns into 15 pF) contradicts
+#: (invented test data).
+_FAST_EDGE = """\
+format = "pinlib.part/1"
+id = "o"
+title = "Invented output"
+category = "memory"
+supply = { min = "3 V", max = "3.6 V" }
+
+[pins.cipo]
+function = "spi-cipo"
+drive = "push-pull"
+r_out = "60 Ω"
+edges = [{ load = "15 pF", rise = "1.5 ns", fall = "3 ns" }]
+"""
+
+
+def _slow_r_out(env):
+    from pinlib.library.plausible import part_warnings
+
+    lib = env.part(_FAST_EDGE)
+    (got,) = part_warnings(lib.get("o"), lib)
+    return got
+
+
+# derived: ln 9 · 60 Ω · 15 pF = 1.977 ns (the single-pole RC step, 10-90 %)
+@case("R_OUT_SLOWER_THAN_EDGES", M.R_OUT_SLOWER_THAN_EDGES.format(
+    levels="10-90", direction="rise", model="1.98 ns", load="15 pF", time="1.5 ns"))
+def _(env):
+    return _slow_r_out(env)
+
+
+@case("R_OUT_EDGES_RULE", M.R_OUT_EDGES_RULE)
+def _(env):
+    return _slow_r_out(env).message
+
+
 def _implausible(env):
     from pinlib.library.plausible import part_warnings
 

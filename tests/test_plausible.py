@@ -443,3 +443,71 @@ def test_parts_check_lists_a_typ_beyond_its_limit_and_the_part_still_loads(team,
     got = capsys.readouterr()
     err = " ".join((got.out + got.err).split())
     assert "field 'pins.sda.c_in.typ': the typical value lies beyond the limit" in err
+
+
+#: A push-pull output whose edge points are stated (invented test data): 1.5 ns (10-90 %)
+#: into 15 pF, 2.5 ns into 30 pF, and 1.2 ns (20-80 %) into 15 pF.
+OUTPUT = """\
+format = "pinlib.part/1"
+id = "out-x"
+title = "Invented output (demo data)"
+category = "memory"
+supply = {{ min = "3 V", max = "3.6 V" }}
+provenance = {{ basis = "datasheet", source = "invented rev A" }}
+
+[pins]
+sclk = {{ function = "spi-sclk" }}
+copi = {{ function = "spi-copi" }}
+cs = {{ function = "spi-cs" }}
+
+[pins.cipo]
+function = "spi-cipo"
+drive = "push-pull"
+{r_out}
+edges = [
+  {{ load = "15 pF", rise = "1.5 ns", fall = "1.5 ns" }},
+  {{ load = "30 pF", rise = "2.5 ns", fall = "2.5 ns" }},
+  {{ load = "15 pF", fall = "1.2 ns", levels = "20-80" }},
+]
+"""
+
+
+@pytest.mark.parametrize(("r_out", "problem"), [
+    # derived (single-pole RC step, 10-90 % = ln 9 · RC): 35 Ω · 15 pF → 1.153 ns and
+    # 35 Ω · 30 pF → 2.307 ns, 20-80 % (ln 4 · RC) 0.728 ns: no problem
+    ('r_out = "35 Ω"', None),
+    # 40 Ω · 30 pF → 2.637 ns, beyond 5 % over 2.5 ns (2.625 ns)
+    ('r_out = "40 Ω"', "a 10-90 % rise of 2.64 ns into 30 pF, slower than the 2.5 ns"),
+    # 60 Ω · 15 pF → 1.977 ns against 1.5 ns: the rise of the first point
+    ('r_out = "60 Ω"', "a 10-90 % rise of 1.98 ns into 15 pF, slower than the 1.5 ns"),
+    # 20-80 % = ln 4 · RC: 45 Ω · 15 pF → 0.936 ns of 1.2 ns, but 10-90 % 45 Ω · 30 pF →
+    # 2.966 ns against 2.5 ns
+    ('r_out = "45 Ω"', "a 10-90 % rise of 2.97 ns into 30 pF, slower than the 2.5 ns"),
+    # the fast corner's own r_out against its own edges: 30 Ω · 15 pF → 0.989 ns (10-90 %)
+    # against 0.8 ns
+    ('r_out = "35 Ω"\nfast = { r_out = "30 Ω", edges = [{ load = "15 pF", rise = "0.8 ns" }] }',
+     "a 10-90 % rise of 989 ps into 15 pF, slower than the 800 ps"),
+    ('', None),  # no r_out: the edges set it
+])
+def test_an_r_out_its_own_edges_contradict_is_a_problem(team, capsys, r_out, problem):
+    # A team part recorded r_out 60 Ω beside inherited edges of 1.5 ns into 15 pF: its
+    # RC alone is slower than the edge, so the driver fit cannot hold the points, and
+    # only --detail said so (the edges got faster and the margins larger)
+    (team / "out-x.toml").write_text(OUTPUT.format(r_out=r_out), encoding="utf-8")
+    code = main(["parts", "check", str(team), "--library", str(team)])
+    out = " ".join(capsys.readouterr().out.split())
+    assert code == (1 if problem else 0)
+    if problem:
+        field = "pins.cipo.fast.r_out" if "fast" in r_out else "pins.cipo.r_out"
+        line = 17 if "fast" in r_out else 16  # the file's line that sets it
+        assert f"out-x.toml:{line}, field '{field}': alone it gives {problem}" in out
+        assert "record r_out and the edges from the same datasheet" in out
+
+
+def test_recording_an_r_out_its_edges_contradict_warns(team, capsys):
+    (team / "out-x.toml").write_text(OUTPUT.format(r_out=""), encoding="utf-8")
+    assert main(["parts", "record", "out-x", "cipo.r_out", "60 Ω", "--source", "x",
+                 "--library", str(team)]) == 0
+    err = " ".join(capsys.readouterr().err.split())
+    assert "pinlib: warning:" in err and "field 'pins.cipo.r_out'" in err
+    assert "1.98 ns into 15 pF" in err  # derived: ln 9 · 60 Ω · 15 pF

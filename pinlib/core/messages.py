@@ -530,6 +530,12 @@ FIT_EDGE_FALLS_WITH_LOAD = ("{levels} % edge time falls as the load rises ({time
                             "points")
 FIT_R_OUT_TO_ZERO = ("the best fit drives r_out to zero ({r_out}): the edge time hardly grows "
                      "with load, so these points support no positive r_out")
+# pinlib/library/plausible.py: an r_out the pin's own edge points contradict
+R_OUT_SLOWER_THAN_EDGES = ("alone it gives a {levels} % {direction} of {model} into {load}, "
+                           "slower than the {time} the pin's edges state there")
+R_OUT_EDGES_RULE = ("an r_out whose RC edge into each stated load (ln 9 · r_out · C for 10-90 %) "
+                    "is no slower than the edge stated there: record r_out and the edges from "
+                    "the same datasheet, or leave r_out out and let the edges set it")
 FIT_R_OUT_ALONE_TOO_SLOW = ("r_out {r_out} alone gives {model} at {load}, slower than the "
                             "datasheet's {time} with no ramp at all")
 FIT_POINTS_DO_NOT_FIT = ("the points do not fit the driver model within {tolerance}: at {load} "

@@ -4,10 +4,11 @@ The schema refuses what cannot be a value at all (a negative capacitance, a lost
 prefix).  This module lists what is possible but implausible for the field and the kind
 of pin, by the ranges of :data:`RANGES`, a typical value on the wrong side of the limit
 it rides beside (:func:`typ_beyond`: one of the two mistyped, or a typ measured under
-other conditions; pinlib never computes with a typ), and the cable classes whose
-capacitance, delay and impedance disagree.  ``pinlib parts check`` lists them as
-problems, ``pinlib parts record`` warns when it writes one, and ``pinlib check`` warns
-about the parts a design places.
+other conditions; pinlib never computes with a typ), an output's ``r_out`` that alone
+gives a slower edge than the pin's edge points state (:func:`edge_contradictions`), and
+the cable classes whose capacitance, delay and impedance disagree.  ``pinlib parts
+check`` lists them as problems, ``pinlib parts record`` warns when it writes one, and
+``pinlib check`` warns about the parts a design places.
 
 The ranges are common practice, with no source: wide enough for every ordinary pin
 (a 5 V part's levels, a connector's capacitance), narrow enough to catch a value typed
@@ -16,14 +17,16 @@ in the wrong unit or with the wrong sign.
 
 from __future__ import annotations
 
+import math
+
 from pinlib.core import messages as M
 from pinlib.core.errors import LibraryError
 from pinlib.core.quantity import format_si
 from pinlib.library.schema import LINE_AGREEMENT, Part
 from pinlib.library.values import Sourced
 
-__all__ = ["RANGES", "LINE_AGREEMENT", "TYP_SIDE", "GIVEN_BY_CONTROLLER", "implausible",
-           "part_warnings", "typ_beyond"]
+__all__ = ["RANGES", "LINE_AGREEMENT", "TYP_SIDE", "GIVEN_BY_CONTROLLER", "EDGE_SLACK",
+           "implausible", "part_warnings", "typ_beyond", "edge_contradictions"]
 
 # common practice, no source: (field, pin drive or "*") -> (low, high, unit); levels in
 # volts at the part's supply (a relative level is tried at the supply's two ends), or as
@@ -175,6 +178,41 @@ def implausible(value: Sourced, field: str, drive: str = "*",
     return None
 
 
+#: How much slower than a stated edge the RC of ``r_out`` alone may be before the two
+#: contradict each other (the 5 % within which the driver fit holds its points).
+EDGE_SLACK = 0.05
+
+#: ln((1 - lo) / (1 - hi)): an RC edge's time between the levels, in time constants
+#: (published: the single-pole step response v = 1 - exp(-t/RC)).
+_RC_SPAN = {"10-90": math.log(9.0), "20-80": math.log(4.0)}
+
+
+def edge_contradictions(r_out: Sourced | None, edges, vdd: float | None = None
+                        ) -> list[tuple[str, str, float, float, float]]:
+    """The edge points an output's ``r_out`` cannot meet: its RC into the point's load
+    alone (the fastest edge that resistance gives, with an instant ramp before it) is
+    more than :data:`EDGE_SLACK` slower than the time the point states.  Each as
+    ``(direction, levels, load, stated time, RC time)``, in farads and seconds."""
+    if r_out is None or not edges:
+        return []
+    out = []
+    for e in edges:
+        point_vdd = float(e.vdd.value) if e.vdd is not None else vdd
+        try:
+            r = float(r_out.at(point_vdd))
+        except ValueError:
+            continue
+        load = float(e.load.value)
+        for direction in ("rise", "fall"):
+            t = getattr(e, direction)
+            if t is None:
+                continue
+            rc = _RC_SPAN[e.levels] * r * load
+            if rc > float(t.value) * (1.0 + EDGE_SLACK):
+                out.append((direction, e.levels, load, float(t.value), rc))
+    return out
+
+
 def _where(lib, pid: str, value: Sourced, path: tuple) -> dict:
     origin = value.origin or pid
     pf = lib.files.get(origin) if lib is not None else None
@@ -201,6 +239,23 @@ def part_warnings(part: Part, lib=None, *, own_only: bool = False) -> list[Libra
             if pin.fast is not None and pin.fast.r_out is not None:
                 _add(prefix + (name, "fast", "r_out"), pin.fast.r_out, "r_out", pin.drive)
                 _corners(prefix + (name, "fast", "r_out"), pin)
+            typ = None if supply is None or supply.typ is None else float(supply.typ.value)
+            _edges(prefix + (name, "r_out"), pin.r_out, pin.edges, typ)
+            if pin.fast is not None:
+                _edges(prefix + (name, "fast", "r_out"), pin.fast.r_out,
+                       pin.fast.edges, typ)
+
+    def _edges(path, r_out, edges, vdd) -> None:
+        if r_out is None or (own_only and r_out.origin not in (None, part.id)):
+            return
+        for direction, levels, load, stated, rc in edge_contradictions(r_out, edges, vdd):
+            out.append(LibraryError(
+                M.R_OUT_SLOWER_THAN_EDGES.format(
+                    model=format_si(rc, "s"), levels=levels, load=format_si(load, "F"),
+                    time=format_si(stated, "s"), direction=direction),
+                field=".".join(map(str, path)), value=r_out.text,
+                expected=M.R_OUT_EDGES_RULE, **_where(lib, part.id, r_out, path)))
+            return  # one problem a resistance: the first point it cannot meet
 
     def _corners(path, pin) -> None:
         fast, slow = pin.fast.r_out, pin.r_out
