@@ -2183,7 +2183,7 @@ def _(env):
     return err
 
 
-@case("COUPLING_WRONG_FAMILY", M.COUPLING_WRONG_FAMILY.format(family="open-drain"))
+@case("COUPLING_WRONG_FAMILY", M.COUPLING_WRONG_FAMILY.format(family="an open-drain line"))
 def _(env):
     return _fails(lambda e: e.design(_coupling(victim='"s.sclk"')), env)
 

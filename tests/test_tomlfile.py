@@ -32,6 +32,40 @@ def test_line_index_finds_inline_keys_and_dotted_ones():
     assert ("devices", 0, "q") not in index
 
 
+def test_inline_tables_sharing_a_line_and_an_array_of_tables_have_their_lines():
+    # the second and third devices on one line were placed at the array's first line
+    # (its "devices = [" line), and a misspelt [[bux]] at line 1
+    text = textwrap.dedent("""\
+        title = "t"
+
+        [[bux]]
+        id = "a"
+        devices = [
+          { ref = "U1", part = "p" },
+          { ref = "U2", part = "q" }, { ref = "U3", part = "r {x}", t = { u = 1 } },
+          { ref = "U4", part = "s" },
+        ]
+        """)
+    index = line_index(text)
+    assert index[("bux",)] == 3 and index[("bux", 0, "id")] == 4
+    assert [index[("bux", 0, "devices", i)] for i in range(4)] == [6, 7, 7, 8]
+    assert index[("bux", 0, "devices", 2, "part")] == 7
+    assert ("bux", 0, "devices", 4) not in index  # a brace in a string is no table
+    assert index[("bux", 0, "devices", 3, "part")] == 8
+
+
+def test_a_table_in_an_error_is_named_by_its_keys_not_dumped(tmp_path, capsys):
+    from pinlib.cli import main
+
+    path = tmp_path / "d.toml"
+    path.write_text('format = "pinlib.design/1"\ntitle = "t"\n\n[[bux]]\nid = "a"\n'
+                    'protocol = "i2c"\n', encoding="utf-8")
+    assert main(["check", str(path)]) == 2
+    err = capsys.readouterr().err
+    assert "d.toml:4, field 'bux': unknown field (got an array of 1 table)" in err
+    assert "{'" not in err
+
+
 def test_line_lookup_is_linear_in_a_long_value():
     # Once quadratic: 20,000 characters took seconds and 2 MB never finished.  Each of
     # these 2 MB lines must now be indexed at once (run, not timed: a quadratic scan

@@ -166,6 +166,12 @@ def _echo(value: object) -> str:
         return "true" if value else "false"  # as a TOML file writes it, not True
     if isinstance(value, (str, bytes)) and len(value) > ECHO_LIMIT:
         return f"{value[: ECHO_LIMIT - 20]!r}… ({len(value):,} characters)"
+    if isinstance(value, dict):  # a TOML table: its keys say what it is, not its repr
+        keys = [str(k) for k in value]
+        shown = ", ".join(keys[:6]) + (", …" if len(keys) > 6 else "")
+        return f"a table ({shown})" if keys else "an empty table"
+    if isinstance(value, (list, tuple)) and value and all(isinstance(v, dict) for v in value):
+        return f"an array of {len(value):,} table{'' if len(value) == 1 else 's'}"
     if isinstance(value, (list, tuple, dict, set)):
         if len(value) > ECHO_LIMIT:
             return f"a {type(value).__name__} of {len(value):,} items"

@@ -57,6 +57,29 @@ def _inline_keys(text: str) -> list[tuple]:
             if m.group(1)]
 
 
+def _inline_tables(line: str) -> list[str]:
+    """The outermost ``{ ... }`` of ``line``, each as its text (braces inside quoted
+    strings are not counted; an unclosed last table runs to the line's end)."""
+    out, depth, start, quote = [], 0, 0, None
+    for i, ch in enumerate(line):
+        if quote:
+            if ch == quote:
+                quote = None
+        elif ch in "\"'":
+            quote = ch
+        elif ch == "{":
+            if depth == 0:
+                start = i
+            depth += 1
+        elif ch == "}" and depth:
+            depth -= 1
+            if depth == 0:
+                out.append(line[start:i + 1])
+    if depth:
+        out.append(line[start:])
+    return out
+
+
 def _split_dotted(text: str) -> list[str]:
     return [p.strip().strip('"').strip("'") for p in re.findall(_KEY, text)]
 
@@ -73,13 +96,15 @@ def line_index(text: str) -> dict[tuple, int]:
         line = raw.split("#", 1)[0] if '"' not in raw and "'" not in raw else raw
         if open_array is not None:
             stripped = line.strip()
-            # One item a line, as pinlib's files write arrays of inline tables.
+            # Each inline table on the line is an item (pinlib's files write one a
+            # line); a line of other values counts as one item.
             if stripped and stripped[0] not in "]#":
-                pos = array_items[open_array]
-                index.setdefault(open_array + (pos,), number)
-                for key in _inline_keys(line):
-                    index.setdefault(open_array + (pos,) + key, number)
-                array_items[open_array] = pos + 1
+                for item in _inline_tables(line) or [line]:
+                    pos = array_items[open_array]
+                    index.setdefault(open_array + (pos,), number)
+                    for key in _inline_keys(item):
+                        index.setdefault(open_array + (pos,) + key, number)
+                    array_items[open_array] = pos + 1
             depth += line.count("[") - line.count("]")
             if depth <= 0:
                 open_array = None
@@ -90,6 +115,7 @@ def line_index(text: str) -> dict[tuple, int]:
             parts = _resolve_arrays(names, counters)
             if h.group(1):  # [[array.of.tables]]: a new item of the array
                 key = _resolve_arrays(names[:-1], counters) + names[-1:]
+                index.setdefault(key, number)  # the array itself: its first item's line
                 counters[key] = counters.get(key, -1) + 1
                 table = key + (counters[key],)
             else:

@@ -119,7 +119,7 @@ def _line(text: str, loc, buses: dict[str, Bus], err, open_drain: bool) -> tuple
     bus = buses[bus_id]
     if protocols.is_open_drain(bus.protocol) != open_drain:
         raise err(M.COUPLING_WRONG_FAMILY.format(
-            family="open-drain" if open_drain else "push-pull"), loc, value=bus_id,
+            family="an open-drain line" if open_drain else "a push-pull line"), loc, value=bus_id,
             expected="an I2C or SMBus line" if open_drain else "a routed SPI or GPIO line")
     signals = (protocols.protocol(bus.protocol).signal_names if open_drain
                else tuple(bus.lines))
