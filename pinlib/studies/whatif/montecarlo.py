@@ -137,9 +137,9 @@ def _checked_size(n, chunk: int) -> int:
     chunk below 1 refused."""
     n = int(n)
     if n < 1:
-        raise InputError(M.TOO_FEW_SAMPLES, field="monte-carlo", value=n, expected="at least 1")
+        raise InputError(M.TOO_FEW_SAMPLES, field="--monte-carlo", value=n, expected="at least 1")
     if n > MAX_BOARDS:
-        raise InputError(M.TOO_MANY_SAMPLES, field="monte-carlo", value=f"{n:,} boards",
+        raise InputError(M.TOO_MANY_SAMPLES, field="--monte-carlo", value=f"{n:,} boards",
                          expected=f"at most {MAX_BOARDS:,} boards",
                          hint="split the run over several seeds and add the counts")
     if chunk < 1:
