@@ -3914,7 +3914,8 @@ def _(env):
     return _fails(lambda e: _compare().snapshot(design, {"format": "other"}), env)
 
 
-@case("SNAPSHOT_NOT_JSON", M.SNAPSHOT_NOT_JSON.format(detail="Expecting value"))
+@case("SNAPSHOT_NOT_JSON",
+      M.SNAPSHOT_NOT_JSON.format(detail="Expecting value at line 1, column 1"))
 def _(env):
     env.write("x.result.json", "nope")
     return _fails(lambda e: _compare().load_snapshot(e.tmp / "x.result.json"), env)
@@ -3934,13 +3935,37 @@ def _(env):
     return err
 
 
-@case("SNAPSHOT_IGNORED", M.SNAPSHOT_IGNORED.format(design="{design}"))
+@case("SNAPSHOT_IGNORED", M.SNAPSHOT_IGNORED.format(
+    advice=M.SNAPSHOT_SAVE_ANEW.format(design="{design}")))
 def _(env):
     design = env.write("design.toml", HEAD + I2C_BUS)
     env.write("design.result.json", '{"format": "pinlib.result/1", "parts": []}')
     assert main(["check", str(design)]) == 0  # the check runs; the snapshot is ignored
     err = env.capsys.readouterr().err
     return err.replace(str(design), "{design}")
+
+
+@case("SNAPSHOT_SAVE_ANEW", M.SNAPSHOT_SAVE_ANEW.format(design="{design}"))
+def _(env):
+    design = env.write("design.toml", HEAD + I2C_BUS)
+    other = env.write("other.toml", HEAD + I2C_BUS)
+    env.write("design.result.json", "{")
+    main(["check", str(design), str(other), "--against-snapshots", "--jobs", "1"])
+    return env.capsys.readouterr().out.replace(str(design), "{design}")
+
+
+@case("SNAPSHOT_IS_FOLDER")
+def _(env):
+    (env.tmp / "x.result.json").mkdir()
+    return _fails(lambda e: _compare().load_snapshot(e.tmp / "x.result.json"), env)
+
+
+@case("SNAPSHOT_MOVE_AWAY", M.SNAPSHOT_MOVE_AWAY.format(design="{design}"))
+def _(env):
+    design = env.write("design.toml", HEAD + I2C_BUS)
+    (env.tmp / "design.result.json").mkdir()
+    assert main(["check", str(design), "--save"]) == 2
+    return env.capsys.readouterr().err.replace(str(design), "{design}")
 
 
 @case("NEGATIVE_THRESHOLD")

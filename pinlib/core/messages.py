@@ -754,8 +754,13 @@ SNAPSHOT_NOT_JSON = "the snapshot is not valid JSON: {detail}"
 NOT_A_SNAPSHOT = "not a pinlib result snapshot"
 SNAPSHOT_DAMAGED = "the snapshot is damaged: a value of the wrong kind"
 # printed by pinlib check and pinlib report after the error of a snapshot they ignore
-SNAPSHOT_IGNORED = ("the snapshot is ignored (no change list); `pinlib check {design} --save` "
-                    "replaces it")
+SNAPSHOT_IGNORED = "the snapshot is ignored (no change list); {advice}"
+# the advice beside a snapshot that cannot be used (pinlib/studies/snapshotfile.py)
+SNAPSHOT_SAVE_ANEW = "delete it or save a new one with `pinlib check {design} --save`"
+SNAPSHOT_IS_FOLDER = ("a folder stands where the snapshot file belongs (--save never writes "
+                      "over a folder)")
+SNAPSHOT_MOVE_AWAY = ("move or rename it, then `pinlib check {design} --save` writes the "
+                      "snapshot there")
 NEGATIVE_THRESHOLD = "a negative threshold"
 EDIT_CHANGES_MORE = "editing the design file would change more than the parts"
 EDIT_LOST_PART = "the edited design does not hold the new part"

@@ -120,7 +120,7 @@ def check_one(path, library_folders=(), against_snapshots: bool = False,
 
 def _against_snapshot(out: DesignSummary, design, result, threshold) -> None:
     from pinlib.studies.compare import DEFAULT_THRESHOLD, compare_with_snapshot
-    from pinlib.studies.snapshotfile import may_have_snapshot
+    from pinlib.studies.snapshotfile import may_have_snapshot, snapshot_advice, snapshot_path
 
     if not may_have_snapshot(design):
         out.snapshot = "none"
@@ -131,7 +131,8 @@ def _against_snapshot(out: DesignSummary, design, result, threshold) -> None:
                                     damaged=damaged)
     if changes is None:
         out.snapshot = "damaged" if damaged else "none"
-        out.notes += [err.message for err in damaged]
+        advice = snapshot_advice(snapshot_path(design), out.path)  # the design named
+        out.notes += [err.with_hint(advice).message for err in damaged]
         return
     out.snapshot = "compared"
     out.changes = changes.to_json()
