@@ -890,6 +890,66 @@ def test_swap_write_changes_only_the_part(board, capsys):
     assert load_design(board).device("U4")[1].part_id == "eeprom-hicap"
 
 
+@pytest.mark.parametrize("trouble", ["read-only", "disk full"])
+@pytest.mark.parametrize("json_out", [False, True])
+def test_a_failed_swap_write_prints_the_evaluation_then_the_error(board, capsys, monkeypatch,
+                                                                 trouble, json_out):
+    # a --write that failed printed only its error: the change list was lost
+    import errno
+    import os
+    import stat
+
+    from pinlib.core import tomlfile
+
+    old = board.read_bytes()
+    if trouble == "read-only":
+        board.chmod(stat.S_IRUSR | stat.S_IRGRP | stat.S_IROTH)
+    else:
+        def full(fd):
+            raise OSError(errno.ENOSPC, os.strerror(errno.ENOSPC))
+        monkeypatch.setattr(tomlfile.os, "fsync", full)
+    try:
+        code = main(["swap", str(board), "U4=eeprom-hicap", "--write"]
+                    + (["--json"] if json_out else []))
+    finally:
+        board.chmod(stat.S_IRUSR | stat.S_IWUSR)
+    out, err = capsys.readouterr()
+    assert code == 2  # docs/cli.md: a file that cannot be written is exit 2
+    assert board.read_bytes() == old  # the old file whole
+    assert [p.name for p in board.parent.iterdir() if p.name.endswith(".tmp")] == []
+    reason = "read-only" if trouble == "read-only" else os.strerror(errno.ENOSPC)
+    assert "pinlib: error:" in err and reason in " ".join(err.split())
+    if json_out:
+        data = json.loads(out)
+        assert data["written"] is False and data["changes"]["status_changes"]
+    else:
+        assert "Status: PASS → FAIL" in out and "Checks whose status changed:" in out
+        assert f"{board} not changed: it could not be written" in " ".join(out.split())
+        assert "Wrote" not in out
+
+
+def test_a_failed_swap_part_write_keeps_the_designs_changes(board, capsys):
+    import stat
+
+    old = board.read_bytes()
+    board.chmod(stat.S_IRUSR | stat.S_IRGRP | stat.S_IROTH)
+    try:
+        code = main(["swap", "--part", "eeprom-i2c=eeprom-hicap", str(board), "--write"])
+        out, err = capsys.readouterr()
+        assert main(["swap", "--part", "eeprom-i2c=eeprom-hicap", str(board), "--write",
+                     "--json"]) == 2
+        data = json.loads(capsys.readouterr().out)["designs"][0]
+    finally:
+        board.chmod(stat.S_IRUSR | stat.S_IWUSR)
+    assert code == 2 and board.read_bytes() == old
+    out = " ".join(out.split())
+    assert "PASS → FAIL" in out and "0 not checked" in out and ": not checked" not in out
+    assert "not written (the error is on standard error)" in out
+    assert "read-only" in err
+    assert data["status"] == "swapped" and data["written"] is False
+    assert "read-only" in data["write_error"]
+
+
 def test_swap_write_of_a_part_only_library_option_holds_says_so(board, capsys):
     # the design names no library; eeprom-hicap came from --library team. After --write
     # the design no longer loaded without that option, and nothing said so

@@ -3973,6 +3973,28 @@ def _(env):
     return _fails(lambda e: _compare().parse_change_threshold("-5 %"), env)
 
 
+def _swap_read_only(env, *argv):
+    """A swap --write of a read-only design: what it printed on standard output."""
+    design = env.write("design.toml", HEAD + I2C_BUS)
+    design.chmod(0o444)
+    try:
+        args = [*argv, str(design)] if argv[0] == "--part" else [str(design), *argv]
+        assert main(["swap", *args, "--write"]) == 2
+    finally:
+        design.chmod(0o644)
+    return env.capsys.readouterr().out.replace(str(design), "{path}")
+
+
+@case("SWAP_NOT_WRITTEN", M.SWAP_NOT_WRITTEN.format(path="{path}"))
+def _(env):
+    return " ".join(_swap_read_only(env, "U2=rtc-i2c").split())  # wrapped at 80 columns
+
+
+@case("SWAP_LINE_NOT_WRITTEN")
+def _(env):
+    return " ".join(_swap_read_only(env, "--part", "eeprom-i2c=rtc-i2c").split())
+
+
 @case("EDIT_CHANGES_MORE")
 def _(env):
     import tomlkit

@@ -762,6 +762,11 @@ SNAPSHOT_IS_FOLDER = ("a folder stands where the snapshot file belongs (--save n
 SNAPSHOT_MOVE_AWAY = ("move or rename it, then `pinlib check {design} --save` writes the "
                       "snapshot there")
 NEGATIVE_THRESHOLD = "a negative threshold"
+# pinlib swap --write, under the change list, when the design file could not be written
+SWAP_NOT_WRITTEN = ("{path} not changed: it could not be written (the error follows on "
+                    "standard error)")
+# pinlib swap --part OLD=NEW --write: a design's line when its file could not be written
+SWAP_LINE_NOT_WRITTEN = "not written (the error is on standard error)"
 EDIT_CHANGES_MORE = "editing the design file would change more than the parts"
 EDIT_LOST_PART = "the edited design does not hold the new part"
 # pinlib/studies/candidates.py

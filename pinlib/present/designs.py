@@ -160,6 +160,8 @@ def _swap_lines(s, width: int) -> list[str]:
                 else "")
              + f"{_counted(len(c.figure_changes), 'figure')} moved")
     written = "; written" if s.written else ""
+    if s.write_error is not None:
+        written = "; " + M.SWAP_LINE_NOT_WRITTEN
     out = [head + f"{s.before.upper()} → {s.after.upper()}  {where}; {moved}{written}"]
     out += ["    " + ch.format() for ch in c.status_changes]
     out += ["    " + ch.format() for ch in c.margin_changes]

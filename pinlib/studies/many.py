@@ -280,8 +280,9 @@ class SwapSummary:
 
     ``status`` is ``swapped`` (evaluated before and after), ``refused`` (a position where
     the new part cannot serve: ``refused`` holds each position's reasons, nothing is
-    evaluated), ``unused`` (no old part stands in it) or ``error`` (not loaded).
-    ``design`` is the loaded design (for writing the file), not kept in JSON.
+    evaluated), ``unused`` (no old part stands in it) or ``error`` (not loaded).  A
+    swapped design that ``--write`` could not write keeps its changes, with
+    ``write_error``.  ``design`` is the loaded design (for writing the file), not kept in JSON.
     """
 
     path: str
@@ -295,11 +296,12 @@ class SwapSummary:
     changes: object = None                           # a ChangeList
     error: str | None = None
     written: bool = False
+    write_error: str | None = None                   # why --write could not write it
     design: object = None
 
     @property
     def exit_code(self) -> int:
-        if self.status in ("error", "refused"):
+        if self.status in ("error", "refused") or self.write_error is not None:
             return 2
         return 1 if self.after == "fail" else 0
 
@@ -314,6 +316,8 @@ class SwapSummary:
         if self.status == "swapped":
             out.update(before=self.before, after=self.after, written=self.written,
                        changes=self.changes.to_json())
+            if self.write_error is not None:
+                out["write_error"] = self.write_error
         return out
 
 
