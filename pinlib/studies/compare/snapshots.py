@@ -13,9 +13,9 @@ from typing import Any
 from pinlib import __version__
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
+from pinlib.core.pathkind import FOLDER, path_kind
 from pinlib.core.quantity import Threshold
 from pinlib.core.records import Record
-from pinlib.core.pathkind import FOLDER, path_kind
 from pinlib.core.tomlfile import UTF8_BOM, atomic_write, read_regular, refuse_irregular_target
 from pinlib.library.loader import BUILTIN_DIR
 from pinlib.library.schema import Part
