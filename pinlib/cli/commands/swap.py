@@ -65,6 +65,40 @@ def threshold_type(text: str) -> float:
                                          ) from None
 
 
+class _SwapHelp(HelpLayout):
+    """The usage in the command's two forms, as it takes them: ``DESIGN REF=PART
+    [REF=PART ...]`` (one substitution at least), and ``--part OLD=NEW DESIGN
+    [DESIGN ...]`` (the positionals then all designs; ``--detail`` is for one design)."""
+
+    def _format_usage(self, usage, actions, groups, prefix):
+        import copy
+
+        if usage is not None:
+            return super()._format_usage(usage, actions, groups, prefix)
+        one, many, part = [], [], None
+        for a in actions:
+            if a.dest == "parts":
+                part = copy.copy(a)
+                part.required = True  # shown bare: the second form needs it
+            elif a.dest == "swaps":
+                needed = copy.copy(a)
+                needed.nargs = "+"  # REF=PART [REF=PART ...]
+                one.append(needed)
+                designs = copy.copy(a)
+                designs.metavar = "DESIGN"  # [DESIGN ...]
+                many.append(designs)
+            elif a.dest == "detail":
+                one.append(a)
+            else:
+                one.append(a)
+                many.append(a)
+        if part is not None:
+            many.append(part)  # after the other options (the positionals follow them)
+        first = super()._format_usage(None, one, groups, prefix)
+        second = super()._format_usage(None, many, groups, " " * len(prefix or "usage: "))
+        return first.rstrip("\n") + "\n" + second
+
+
 def add_parser(sub) -> None:
     p = sub.add_parser(
         "swap",
@@ -74,7 +108,7 @@ def add_parser(sub) -> None:
                     "the part values behind the change. --write edits the design file in "
                     "place, keeping its comments and formatting.",
         epilog=EXAMPLES,
-        formatter_class=HelpLayout,
+        formatter_class=_SwapHelp,
     )
     p.add_argument("design", metavar="DESIGN", help="the design file (.toml)")
     p.add_argument("swaps", metavar="REF=PART", nargs="*",
