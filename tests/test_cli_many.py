@@ -888,3 +888,24 @@ def test_detail_over_several_designs_is_refused_naming_the_command_for_each(tmp_
     err = " ".join(err.split())
     assert out == "" and "field '--detail'" in err
     assert "run 'pinlib check DESIGN --detail' on each design" in err
+
+
+def test_swap_part_of_a_class_names_the_parts_that_extend_it(tmp_path, capsys, monkeypatch):
+    # --part i2c-peripheral=... answered "no position to change" and nothing more, where
+    # the design's I2C parts all extend that class: --part matches a part as placed
+    monkeypatch.chdir(tmp_path)
+    _board(tmp_path, "a.toml")
+    monkeypatch.setenv("COLUMNS", "80")
+    code = main(["swap", "--part", "i2c-peripheral=eeprom-i2c", "a.toml"])
+    out = " ".join(capsys.readouterr().out.split())
+    assert code == 0
+    assert ("a.toml no position to change: i2c-peripheral is a class other parts extend "
+            "(U4 eeprom-i2c, U5 rtc-i2c") in out
+    assert "`pinlib parts used-by i2c-peripheral` lists the positions" in out
+    main(["swap", "--part", "i2c-peripheral=eeprom-i2c", "a.toml", "--json"])
+    row = json.loads(capsys.readouterr().out)["designs"][0]
+    assert row["status"] == "unused" and "U4 eeprom-i2c" in row["extended"]["i2c-peripheral"]
+    # a part that stands nowhere, as itself or as a class, gets no such words
+    main(["swap", "--part", "io-expander-legacy-5v=eeprom-i2c", "a.toml"])
+    out = capsys.readouterr().out
+    assert "no position to change\n" in out and "used-by" not in out

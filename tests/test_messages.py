@@ -3995,6 +3995,14 @@ def _(env):
     return " ".join(_swap_read_only(env, "--part", "eeprom-i2c=rtc-i2c").split())
 
 
+@case("SWAP_ONLY_EXTENDED",
+      M.SWAP_ONLY_EXTENDED.format(old="i2c-peripheral", where="U2 eeprom-i2c"))
+def _(env):
+    design = env.write("design.toml", HEAD + I2C_BUS)
+    main(["swap", "--part", "i2c-peripheral=rtc-i2c", str(design)])
+    return " ".join(env.capsys.readouterr().out.split())  # wrapped at 80 columns
+
+
 @case("EDIT_CHANGES_MORE")
 def _(env):
     import tomlkit

@@ -767,6 +767,10 @@ SWAP_NOT_WRITTEN = ("{path} not changed: it could not be written (the error foll
                     "standard error)")
 # pinlib swap --part OLD=NEW --write: a design's line when its file could not be written
 SWAP_LINE_NOT_WRITTEN = "not written (the error is on standard error)"
+# pinlib swap --part OLD=NEW: a design where OLD stands only as a class its parts extend
+SWAP_ONLY_EXTENDED = ("{old} is a class other parts extend ({where}); --part replaces a part "
+                      "as placed: `pinlib parts used-by {old}` lists the positions of the "
+                      "parts that extend it")
 EDIT_CHANGES_MORE = "editing the design file would change more than the parts"
 EDIT_LOST_PART = "the edited design does not hold the new part"
 # pinlib/studies/candidates.py

@@ -147,7 +147,9 @@ def _swap_lines(s, width: int) -> list[str]:
         return [head + M.DESIGN_NOT_LOADED.format(path=s.path, message=s.error)
                 .removeprefix(f"{s.path}: ")]
     if s.status == "unused":
-        return [head + "no position to change"]
+        through = "; ".join(M.SWAP_ONLY_EXTENDED.format(old=old, where=", ".join(where))
+                            for old, where in s.extended.items())
+        return [head + "no position to change" + (f": {through}" if through else "")]
     where = ", ".join(f"{r} {s.olds[r]} → {n}" for r, n in s.swaps.items())
     if s.status == "refused":
         out = [head + f"refused ({where}); not changed"]

@@ -297,6 +297,7 @@ class SwapSummary:
     error: str | None = None
     written: bool = False
     write_error: str | None = None                   # why --write could not write it
+    extended: dict = field(default_factory=dict)     # unused: old id -> ["U2 eeprom-x"]
     design: object = None
 
     @property
@@ -313,12 +314,30 @@ class SwapSummary:
             out["error"] = self.error
         if self.refused:
             out["refused"] = self.refused
+        if self.extended:
+            out["extended"] = self.extended
         if self.status == "swapped":
             out.update(before=self.before, after=self.after, written=self.written,
                        changes=self.changes.to_json())
             if self.write_error is not None:
                 out["write_error"] = self.write_error
         return out
+
+
+def _extending(design, parts: dict[str, str]) -> dict[str, list[str]]:
+    """For each old part id that stands in the design only as a class its placed parts
+    extend: those positions (``U2 eeprom-x``), which ``--part`` does not change."""
+    lib = design.library
+    out: dict[str, list[str]] = {}
+    for bus in design.buses:
+        for d in bus.devices:
+            if d.part_id not in lib.files:
+                continue
+            for old in lib.chain(d.part_id)[1:]:
+                where = f"{d.ref} {d.part_id}"
+                if old in parts and where not in out.setdefault(old, []):
+                    out[old].append(where)
+    return out
 
 
 def swap_in_design(path, parts: dict[str, str], library_folders=(),
@@ -340,6 +359,7 @@ def swap_in_design(path, parts: dict[str, str], library_folders=(),
                     out.swaps[d.ref], out.olds[d.ref] = parts[d.part_id], d.part_id
         if not out.swaps:
             out.status = "unused"
+            out.extended = _extending(design, parts)
             return out
         for ref, new in out.swaps.items():
             old, reasons = swap_refusals(design, ref, new, field="--part")
