@@ -1186,3 +1186,32 @@ def test_check_lists_a_published_basis_that_names_no_standard(lib, capsys):
     assert code == 1
     assert [(p["line"], p["field"]) for p in problems] == [(11, "pins.sda.v_ih")]
     assert "basis 'published' but no source" in problems[0]["message"]
+
+
+@pytest.mark.parametrize(("field", "value", "what", "line"), [
+    ("sda.off_tolerant", "true", M.FIELD_IS_YES_NO, "`off_tolerant = true` under [pins.sda]"),
+    ("sda.drive", "push-pull", M.FIELD_IS_SETTING, "`drive = ...` under [pins.sda]"),
+    ("category", "memory", M.FIELD_IS_SETTING, "`category = ...` before the file's first"),
+])
+def test_record_of_a_setting_says_how_to_write_it(lib, capsys, field, value, what, line):
+    # 'parts record X sclk.off_tolerant true' read "not a value with a unit (got
+    # 'sclk.off_tolerant')": the field echoed as the value, and no way forward. A
+    # record is a value with a unit and a source (docs/cli.md); a setting has neither
+    _, team = lib
+    before = (team / "eeprom.toml").read_text(encoding="utf-8")
+    code, _, err = run(capsys, "parts", "record", "eeprom", field, value, "--source", "ds",
+                       "--library", "team")
+    err = " ".join(err.split())
+    assert code == 2
+    assert M.FIELD_TAKES_NO_VALUE.format(what=what) in err
+    assert f"(got '{value}')" in err and f"(got '{field}')" not in err
+    assert "write it in the part file by hand: " + line in err
+    assert (team / "eeprom.toml").read_text(encoding="utf-8") == before
+
+
+def test_record_of_a_list_echoes_no_field_as_its_value(lib, capsys):
+    code, _, err = run(capsys, "parts", "record", "eeprom", "timing.spi_modes", "3",
+                       "--source", "ds", "--library", "team")
+    err = " ".join(err.split())
+    assert code == 2 and "a list (edit the file by hand" in err
+    assert "(got 'timing.spi_modes')" not in err and "(got '3')" in err

@@ -1510,9 +1510,25 @@ def _(env):
     return _fails(lambda e: resolve_path("pins"), env)
 
 
-@case("FIELD_TAKES_NO_VALUE", M.FIELD_TAKES_NO_VALUE.format(what="not a value with a unit"))
+@case("FIELD_TAKES_NO_VALUE", M.FIELD_TAKES_NO_VALUE.format(what="a table"))
+def _(env):
+    return _fails(lambda e: resolve_path("timing"), env)
+
+
+@case("FIELD_IS_SETTING", M.FIELD_TAKES_NO_VALUE.format(what=M.FIELD_IS_SETTING))
 def _(env):
     return _fails(lambda e: resolve_path("sda.function"), env)
+
+
+@case("FIELD_IS_YES_NO", M.FIELD_TAKES_NO_VALUE.format(what=M.FIELD_IS_YES_NO))
+def _(env):
+    return _fails(lambda e: resolve_path("sda.off_tolerant"), env)
+
+
+@case("SETTING_BY_HAND", M.SETTING_BY_HAND.format(line="off_tolerant = true",
+                                                  place="under [pins.sda]"))
+def _(env):
+    return _fails(lambda e: resolve_path("sda.off_tolerant"), env).hint
 
 
 @case("PATH_STOPS_BEFORE_FIELD")

@@ -585,7 +585,7 @@ def _run_record(args) -> int:
 
     lib = _load(args)
     _refuse_unknown(lib, args.id, "ID", args)
-    keys, _ = resolve_field(lib, args.id, args.field)
+    keys, _ = resolve_field(lib, args.id, args.field, args.value)
     was = _value_before(lib, args.id, ".".join(keys), typ_given=args.typ is not None)
     path = record_value(lib, args.id, args.field, args.value, args.source,
                         basis=args.basis, typ=args.typ)
