@@ -1215,3 +1215,16 @@ def test_record_of_a_list_echoes_no_field_as_its_value(lib, capsys):
     err = " ".join(err.split())
     assert code == 2 and "a list (edit the file by hand" in err
     assert "(got 'timing.spi_modes')" not in err and "(got '3')" in err
+
+
+def test_new_where_a_folder_has_the_files_name_says_folder(lib, capsys):
+    # a folder named eeprom-q.toml in the --into folder read "the file exists"
+    _, team = lib
+    (team / "eeprom-q.toml").mkdir()
+    code, out, err = run(capsys, "parts", "new", "eeprom-q", "--from", "base", "--into",
+                         "team")
+    err = " ".join(err.split())
+    assert code == 2 and not out
+    assert M.PART_FILE_IS_FOLDER in err and "the file exists" not in err
+    assert "move that folder away" in err
+    assert (team / "eeprom-q.toml").is_dir() and not any((team / "eeprom-q.toml").iterdir())

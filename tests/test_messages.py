@@ -1600,6 +1600,13 @@ def _(env):
     return env.capsys.readouterr().err
 
 
+@case("PART_FILE_IS_FOLDER")
+def _(env):
+    lib = load_library(env=False)
+    (env.tmp / "elsewhere" / "fresh.toml").mkdir(parents=True)
+    return _fails(lambda e: rec.new_part(lib, "fresh", "eeprom-i2c", e.tmp / "elsewhere"), env)
+
+
 @case("FILE_EXISTS")
 def _(env):
     lib = load_library(env=False)

@@ -247,6 +247,7 @@ CANNOT_CREATE_FOLDER = "cannot create the folder: {reason}"
 CANNOT_REMOVE_OLD_CHART = ("cannot remove this chart of an earlier report ({reason}); the new "
                            "report does not link it")
 FILE_EXISTS = "the file exists"
+PART_FILE_IS_FOLDER = "a folder has the name of the new part's file"
 WOULD_BREAK_CHILD = "the value would break '{child}', which extends this part"
 VALUE_REFUSED = "the value is refused: {problem}"
 PART_WOULD_NOT_VALIDATE = "the part would not validate with this value"

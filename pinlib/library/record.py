@@ -265,8 +265,14 @@ def _provenance_lines(basis: str, source: str, today: _dt.date) -> list[str]:
 def write_new_part(library: loader.Library, new_id: str, target: Path, text: str) -> Path:
     """Write a new part file under its lock: refused when the file exists or when the
     part would not load beside the library; atomic (a failed write leaves nothing)."""
+    from pinlib.core.pathkind import FILE, FOLDER, OTHER, path_kind
+
     with file_lock(target):
-        if target.exists():
+        kind = path_kind(target)[0]
+        if kind == FOLDER:  # "the file exists" sent the reader looking for a file
+            raise LibraryError(M.PART_FILE_IS_FOLDER, file=str(target),
+                               hint="choose another id or folder, or move that folder away")
+        if kind in (FILE, OTHER):
             raise LibraryError(M.FILE_EXISTS, file=str(target),
                                hint="choose another id or folder")
         _validate(library, new_id, target, text)
