@@ -1561,6 +1561,19 @@ def _(env):
     return _fails(lambda e: rec.new_part(lib, "Fresh Part", "eeprom-i2c", e.tmp / "team"), env)
 
 
+@case("TITLE_STATES_OLD_FIGURE", M.TITLE_STATES_OLD_FIGURE.format(
+    title="Serial NOR flash, SPI, 2.7 to 3.6 V, up to 104 MHz", cls="nor-flash-spi",
+    field="timing.f_max", value="50 MHz", file="{file}"))
+def _(env):
+    env.monkeypatch.chdir(env.tmp)
+    assert main(["parts", "new", "flash-t", "--from", "nor-flash-spi", "--into", "team"]) == 0
+    # invented test data: a lower clock than the class's title states
+    assert main(["parts", "record", "flash-t", "timing.f_max", "50 MHz", "--source", "ds",
+                 "--library", "team"]) == 0
+    err = " ".join(env.capsys.readouterr().err.split())
+    return err.replace("team/flash-t.toml", "{file}")
+
+
 @case("PART_ID_EXISTS")
 def _(env):
     lib = load_library(env=False)

@@ -229,6 +229,10 @@ FIELD_PATH_NEEDED = "a field path is needed"
 VALUE_FIELD_NO_SUBFIELDS = "a value field has no sub-fields"
 PATH_STOPS_AT_NAMED_TABLE = "the path stops at a table of named items"
 FIELD_TAKES_NO_VALUE = "this field takes no recorded value: {what}"
+# pinlib parts record, after a figure that the part's title, copied from its class, states
+TITLE_STATES_OLD_FIGURE = ("the title '{title}' is the one of {cls}, which this part extends, "
+                           "and does not state the {field} now recorded ({value}): edit "
+                           "the title line of {file} if it no longer describes the part")
 FIELD_IS_YES_NO = "a yes/no setting (true or false), with no unit and no source of its own"
 FIELD_IS_SETTING = "a setting, not a value with a unit, and with no source of its own"
 SETTING_BY_HAND = "write it in the part file by hand: `{line}` {place}"
