@@ -172,3 +172,24 @@ def test_corners_is_described_as_what_it_adds(monkeypatch, capsys):
     got = json.loads(capsys.readouterr().out)
     rows = got["corners"]["checks"]
     assert rows and all(r["status"] == r["worst_case_status"] for r in rows)
+
+
+def test_swap_usage_names_both_forms_as_the_reference_page_does(monkeypatch):
+    # the usage read "DESIGN [REF=PART ...]" (no substitution needed) where docs/cli.md
+    # reads "DESIGN REF=PART [REF=PART ...]", and never showed the --part form
+    import re
+
+    monkeypatch.setenv("COLUMNS", "80")
+    parser = build_parser("swap")
+    sub = next(a for a in parser._actions if isinstance(a, argparse._SubParsersAction))
+    usage = " ".join(sub.choices["swap"].format_usage().split()).removeprefix("usage: ")
+    forms = usage.replace(" pinlib swap", "\npinlib swap").splitlines()
+    assert forms == [
+        "pinlib swap [-h] [--write] [--json] [--library DIR] [--threshold PCT] [--detail] "
+        "DESIGN REF=PART [REF=PART ...]",
+        "pinlib swap [-h] [--write] [--json] [--library DIR] [--threshold PCT] "
+        "--part OLD=NEW DESIGN [DESIGN ...]"]
+    page = (Path(__file__).parents[1] / "docs" / "cli.md").read_text(encoding="utf-8")
+    block = re.search(r"## `pinlib swap`\n\n```\n(.*?)```", page, re.S).group(1)
+    assert " ".join(block.split()).replace(" pinlib swap", "\npinlib swap").splitlines() \
+        == forms

@@ -683,7 +683,34 @@ def test_many_designs_fit_the_width(tmp_path, capsys, monkeypatch):
     main(["check", "a.toml", "b.toml", "--jobs", "1"])
     lines = capsys.readouterr().out.splitlines()
     assert all(len(line) <= 60 for line in lines)
-    assert lines[0].startswith("WARN  a.toml") and lines[1].startswith("WARN  b.toml")
+    # each design's line wrapped whole, its rest indented (the title was cut at "…")
+    heads = [ln for ln in lines if not ln.startswith(" ")]
+    assert heads[0].startswith("WARN  a.toml") and heads[1].startswith("WARN  b.toml")
+    assert "…" not in "\n".join(lines)
+    assert " ".join(" ".join(lines).split()).count("Greenhouse climate logger, main board") \
+        == 2
+
+
+@pytest.mark.parametrize("columns", [80, 40])
+def test_many_designs_wrap_a_long_line_and_cut_nothing(tmp_path, capsys, monkeypatch,
+                                                       columns):
+    # at 80 columns "WARN  spi-board.toml" stood alone over "43 pass, 2 warn (1 beyond a
+    # class's typical or an estimated limit), 0 fail…", the title lost; and a long title
+    # was cut ("Greenhouse climate logger, ma…")
+    monkeypatch.chdir(tmp_path)
+    _board(tmp_path, "demo-board.toml")
+    # an overshoot past a class's typical limit: a warning beyond a soft limit, counted
+    _board(tmp_path, "long-name-board.toml", ('title = "', 'title = "A board named at length: '))
+    monkeypatch.setenv("COLUMNS", str(columns))
+    main(["check", "demo-board.toml", "long-name-board.toml", "--jobs", "1"])
+    out = capsys.readouterr().out
+    lines = out.splitlines()
+    assert all(len(line) <= columns for line in lines)
+    assert "…" not in out
+    flat = " ".join(out.split())
+    assert "— Greenhouse climate logger, main board (invented demo scenario)" in flat
+    assert "— A board named at length: Greenhouse climate logger" in flat
+    assert lines[0].startswith("WARN  demo-board.toml")
 
 
 def test_a_damaged_snapshot_is_not_called_missing(tmp_path, capsys):
@@ -888,3 +915,24 @@ def test_detail_over_several_designs_is_refused_naming_the_command_for_each(tmp_
     err = " ".join(err.split())
     assert out == "" and "field '--detail'" in err
     assert "run 'pinlib check DESIGN --detail' on each design" in err
+
+
+def test_swap_part_of_a_class_names_the_parts_that_extend_it(tmp_path, capsys, monkeypatch):
+    # --part i2c-peripheral=... answered "no position to change" and nothing more, where
+    # the design's I2C parts all extend that class: --part matches a part as placed
+    monkeypatch.chdir(tmp_path)
+    _board(tmp_path, "a.toml")
+    monkeypatch.setenv("COLUMNS", "80")
+    code = main(["swap", "--part", "i2c-peripheral=eeprom-i2c", "a.toml"])
+    out = " ".join(capsys.readouterr().out.split())
+    assert code == 0
+    assert ("a.toml no position to change: i2c-peripheral is a class other parts extend "
+            "(U4 eeprom-i2c, U5 rtc-i2c") in out
+    assert "`pinlib parts used-by i2c-peripheral` lists the positions" in out
+    main(["swap", "--part", "i2c-peripheral=eeprom-i2c", "a.toml", "--json"])
+    row = json.loads(capsys.readouterr().out)["designs"][0]
+    assert row["status"] == "unused" and "U4 eeprom-i2c" in row["extended"]["i2c-peripheral"]
+    # a part that stands nowhere, as itself or as a class, gets no such words
+    main(["swap", "--part", "io-expander-legacy-5v=eeprom-i2c", "a.toml"])
+    out = capsys.readouterr().out
+    assert "no position to change\n" in out and "used-by" not in out

@@ -1186,3 +1186,78 @@ def test_check_lists_a_published_basis_that_names_no_standard(lib, capsys):
     assert code == 1
     assert [(p["line"], p["field"]) for p in problems] == [(11, "pins.sda.v_ih")]
     assert "basis 'published' but no source" in problems[0]["message"]
+
+
+@pytest.mark.parametrize(("field", "value", "what", "line"), [
+    ("sda.off_tolerant", "true", M.FIELD_IS_YES_NO, "`off_tolerant = true` under [pins.sda]"),
+    ("sda.drive", "push-pull", M.FIELD_IS_SETTING, "`drive = ...` under [pins.sda]"),
+    ("category", "memory", M.FIELD_IS_SETTING, "`category = ...` before the file's first"),
+])
+def test_record_of_a_setting_says_how_to_write_it(lib, capsys, field, value, what, line):
+    # 'parts record X sclk.off_tolerant true' read "not a value with a unit (got
+    # 'sclk.off_tolerant')": the field echoed as the value, and no way forward. A
+    # record is a value with a unit and a source (docs/cli.md); a setting has neither
+    _, team = lib
+    before = (team / "eeprom.toml").read_text(encoding="utf-8")
+    code, _, err = run(capsys, "parts", "record", "eeprom", field, value, "--source", "ds",
+                       "--library", "team")
+    err = " ".join(err.split())
+    assert code == 2
+    assert M.FIELD_TAKES_NO_VALUE.format(what=what) in err
+    assert f"(got '{value}')" in err and f"(got '{field}')" not in err
+    assert "write it in the part file by hand: " + line in err
+    assert (team / "eeprom.toml").read_text(encoding="utf-8") == before
+
+
+def test_record_of_a_list_echoes_no_field_as_its_value(lib, capsys):
+    code, _, err = run(capsys, "parts", "record", "eeprom", "timing.spi_modes", "3",
+                       "--source", "ds", "--library", "team")
+    err = " ".join(err.split())
+    assert code == 2 and "a list (edit the file by hand" in err
+    assert "(got 'timing.spi_modes')" not in err and "(got '3')" in err
+
+
+def test_new_where_a_folder_has_the_files_name_says_folder(lib, capsys):
+    # a folder named eeprom-q.toml in the --into folder read "the file exists"
+    _, team = lib
+    (team / "eeprom-q.toml").mkdir()
+    code, out, err = run(capsys, "parts", "new", "eeprom-q", "--from", "base", "--into",
+                         "team")
+    err = " ".join(err.split())
+    assert code == 2 and not out
+    assert M.PART_FILE_IS_FOLDER in err and "the file exists" not in err
+    assert "move that folder away" in err
+    assert (team / "eeprom-q.toml").is_dir() and not any((team / "eeprom-q.toml").iterdir())
+
+
+def test_record_notes_a_copied_title_that_states_another_figure(lib, capsys):
+    # a team part made by 'parts new' keeps its class's title, "..., up to 50 MHz": once
+    # a lower f_max was recorded it read on, unremarked, in every list and report
+    builtin, team = lib
+    (builtin / "flash.toml").write_text(FLASH.replace(
+        'title = "Serial flash, SPI"', 'title = "Serial flash, SPI, 2.7 to 3.6 V, up to 50 MHz"'),
+        encoding="utf-8")  # invented test data: a class's title stating its figures
+    assert run(capsys, "parts", "new", "flash-b", "--from", "flash", "--into", "team")[0] == 0
+    code, out, err = run(capsys, "parts", "record", "flash-b", "timing.f_max", "20 MHz",
+                         "--source", "ds rev A, table 9", "--library", "team")
+    err = " ".join(err.split())
+    assert code == 0 and "recorded timing.f_max = 20 MHz" in out
+    assert M.TITLE_STATES_OLD_FIGURE.format(
+        title="Serial flash, SPI, 2.7 to 3.6 V, up to 50 MHz", cls="flash",
+        field="timing.f_max", value="20 MHz", file="team/flash-b.toml") in err
+    # a value the title states, and a field no title states: no note
+    for field, value in (("supply.max", "3.6 V"), ("sclk.c_in", "5 pF")):
+        code, _, err = run(capsys, "parts", "record", "flash-b", field, value,
+                           "--source", "ds rev A", "--library", "team")
+        assert code == 0 and "note: the title" not in err
+    code, _, err = run(capsys, "parts", "record", "flash-b", "supply.max", "3.3 V",
+                       "--source", "ds rev A", "--library", "team")
+    assert "does not state the supply.max now recorded (3.3 V)" in " ".join(err.split())
+    # a title of the part's own is its writer's words: no note
+    path = team / "flash-b.toml"
+    path.write_text(path.read_text(encoding="utf-8").replace(
+        'title = "Serial flash, SPI, 2.7 to 3.6 V, up to 50 MHz"',
+        'title = "Team flash, up to 50 MHz"'), encoding="utf-8")
+    code, _, err = run(capsys, "parts", "record", "flash-b", "timing.f_max", "10 MHz",
+                       "--source", "ds rev B", "--library", "team")
+    assert code == 0 and "note: the title" not in err

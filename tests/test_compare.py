@@ -386,16 +386,52 @@ def test_broken_snapshot_is_an_input_error(board):
 
 @pytest.mark.parametrize("command", ["check", "report"])
 def test_an_unreadable_snapshot_is_advised_on_once(board, capsys, tmp_path, command):
-    # Once the error's own advice ("delete it or save a new one with `pinlib check
-    # DESIGN --save`") and then the command's ("`pinlib check x.toml --save` replaces it").
+    # Once, naming the design file itself (it read `pinlib check DESIGN --save` where
+    # the file was known).
     snapshot_path(board).write_text("{not json", encoding="utf-8")
     argv = [command, str(board)] + (["--html", str(tmp_path / "r.html")]
                                     if command == "report" else [])
     main(argv)
     err = capsys.readouterr().err
     assert "not valid JSON" in err and "snapshot is ignored" in err
-    assert err.count("--save") == 1 and "delete it" not in err
-    assert f"`pinlib check {board} --save` replaces it" in err
+    assert err.count("--save") == 1 and "DESIGN" not in err
+    assert f"delete it or save a new one with `pinlib check {board} --save`" in err
+
+
+def test_a_cut_snapshot_gives_the_parsers_whole_reason(board, capsys):
+    # a snapshot cut short inside a string read "Unterminated string starting at;": the
+    # parser's message stops at "at", its place left to the exception's str()
+    snapshot_path(board).write_text('{\n  "format": "pinlib.res', encoding="utf-8")
+    main(["check", str(board)])
+    err = " ".join(capsys.readouterr().err.split())
+    assert "Unterminated string starting at line 2, column 13;" in err
+    assert "starting at;" not in err
+    snapshot_path(board).write_text("{}\n\n  x", encoding="utf-8")
+    with pytest.raises(InputError, match="Extra data at line 3, column 3"):
+        load_snapshot(snapshot_path(board))
+
+
+@pytest.mark.parametrize("command", ["check", "report", "many"])
+def test_a_folder_in_the_snapshots_place_is_advised_on_as_a_folder(board, capsys, tmp_path,
+                                                                   command):
+    # a folder named as the snapshot read "cannot read the file: Is a directory; ...
+    # `pinlib check x.toml --save` replaces it", and that command then refused to write
+    # over the folder (exit 2): the advice is to move it away
+    snapshot_path(board).mkdir()
+    argv = {"check": ["check", str(board)],
+            "report": ["report", str(board), "--html", str(tmp_path / "r.html")],
+            "many": ["check", str(board), "--against-snapshots"]}[command]
+    main(argv)
+    captured = capsys.readouterr()
+    said = " ".join((captured.err + captured.out).split())
+    assert "a folder stands where the snapshot file belongs" in said
+    assert f"move or rename it, then `pinlib check {board} --save`" in said
+    assert "replaces it" not in said and "Is a directory" not in said
+    # and --save names the same way out
+    assert main(["check", str(board), "--save"]) == 2
+    err = " ".join(capsys.readouterr().err.split())
+    assert f"move or rename it, then `pinlib check {board} --save`" in err
+    assert snapshot_path(board).is_dir()
 
 
 def test_a_snapshot_number_that_is_none_is_called_so(board, capsys):
@@ -852,6 +888,66 @@ def test_swap_write_changes_only_the_part(board, capsys):
     assert line_old in old
     assert new == old.replace(line_old, line_new)  # every other byte as it was
     assert load_design(board).device("U4")[1].part_id == "eeprom-hicap"
+
+
+@pytest.mark.parametrize("trouble", ["read-only", "disk full"])
+@pytest.mark.parametrize("json_out", [False, True])
+def test_a_failed_swap_write_prints_the_evaluation_then_the_error(board, capsys, monkeypatch,
+                                                                 trouble, json_out):
+    # a --write that failed printed only its error: the change list was lost
+    import errno
+    import os
+    import stat
+
+    from pinlib.core import tomlfile
+
+    old = board.read_bytes()
+    if trouble == "read-only":
+        board.chmod(stat.S_IRUSR | stat.S_IRGRP | stat.S_IROTH)
+    else:
+        def full(fd):
+            raise OSError(errno.ENOSPC, os.strerror(errno.ENOSPC))
+        monkeypatch.setattr(tomlfile.os, "fsync", full)
+    try:
+        code = main(["swap", str(board), "U4=eeprom-hicap", "--write"]
+                    + (["--json"] if json_out else []))
+    finally:
+        board.chmod(stat.S_IRUSR | stat.S_IWUSR)
+    out, err = capsys.readouterr()
+    assert code == 2  # docs/cli.md: a file that cannot be written is exit 2
+    assert board.read_bytes() == old  # the old file whole
+    assert [p.name for p in board.parent.iterdir() if p.name.endswith(".tmp")] == []
+    reason = "read-only" if trouble == "read-only" else os.strerror(errno.ENOSPC)
+    assert "pinlib: error:" in err and reason in " ".join(err.split())
+    if json_out:
+        data = json.loads(out)
+        assert data["written"] is False and data["changes"]["status_changes"]
+    else:
+        assert "Status: PASS → FAIL" in out and "Checks whose status changed:" in out
+        assert f"{board} not changed: it could not be written" in " ".join(out.split())
+        assert "Wrote" not in out
+
+
+def test_a_failed_swap_part_write_keeps_the_designs_changes(board, capsys):
+    import stat
+
+    old = board.read_bytes()
+    board.chmod(stat.S_IRUSR | stat.S_IRGRP | stat.S_IROTH)
+    try:
+        code = main(["swap", "--part", "eeprom-i2c=eeprom-hicap", str(board), "--write"])
+        out, err = capsys.readouterr()
+        assert main(["swap", "--part", "eeprom-i2c=eeprom-hicap", str(board), "--write",
+                     "--json"]) == 2
+        data = json.loads(capsys.readouterr().out)["designs"][0]
+    finally:
+        board.chmod(stat.S_IRUSR | stat.S_IWUSR)
+    assert code == 2 and board.read_bytes() == old
+    out = " ".join(out.split())
+    assert "PASS → FAIL" in out and "0 not checked" in out and ": not checked" not in out
+    assert "not written (the error is on standard error)" in out
+    assert "read-only" in err
+    assert data["status"] == "swapped" and data["written"] is False
+    assert "read-only" in data["write_error"]
 
 
 def test_swap_write_of_a_part_only_library_option_holds_says_so(board, capsys):

@@ -1547,9 +1547,25 @@ def _(env):
     return _fails(lambda e: resolve_path("pins"), env)
 
 
-@case("FIELD_TAKES_NO_VALUE", M.FIELD_TAKES_NO_VALUE.format(what="not a value with a unit"))
+@case("FIELD_TAKES_NO_VALUE", M.FIELD_TAKES_NO_VALUE.format(what="a table"))
+def _(env):
+    return _fails(lambda e: resolve_path("timing"), env)
+
+
+@case("FIELD_IS_SETTING", M.FIELD_TAKES_NO_VALUE.format(what=M.FIELD_IS_SETTING))
 def _(env):
     return _fails(lambda e: resolve_path("sda.function"), env)
+
+
+@case("FIELD_IS_YES_NO", M.FIELD_TAKES_NO_VALUE.format(what=M.FIELD_IS_YES_NO))
+def _(env):
+    return _fails(lambda e: resolve_path("sda.off_tolerant"), env)
+
+
+@case("SETTING_BY_HAND", M.SETTING_BY_HAND.format(line="off_tolerant = true",
+                                                  place="under [pins.sda]"))
+def _(env):
+    return _fails(lambda e: resolve_path("sda.off_tolerant"), env).hint
 
 
 @case("PATH_STOPS_BEFORE_FIELD")
@@ -1580,6 +1596,19 @@ def _(env):
 def _(env):
     lib = load_library(env=False)
     return _fails(lambda e: rec.new_part(lib, "Fresh Part", "eeprom-i2c", e.tmp / "team"), env)
+
+
+@case("TITLE_STATES_OLD_FIGURE", M.TITLE_STATES_OLD_FIGURE.format(
+    title="Serial NOR flash, SPI, 2.7 to 3.6 V, up to 104 MHz", cls="nor-flash-spi",
+    field="timing.f_max", value="50 MHz", file="{file}"))
+def _(env):
+    env.monkeypatch.chdir(env.tmp)
+    assert main(["parts", "new", "flash-t", "--from", "nor-flash-spi", "--into", "team"]) == 0
+    # invented test data: a lower clock than the class's title states
+    assert main(["parts", "record", "flash-t", "timing.f_max", "50 MHz", "--source", "ds",
+                 "--library", "team"]) == 0
+    err = " ".join(env.capsys.readouterr().err.split())
+    return err.replace("team/flash-t.toml", "{file}")
 
 
 @case("PART_ID_EXISTS")
@@ -1619,6 +1648,13 @@ def _(env):
     env.monkeypatch.setattr(Path, "unlink", refuse)
     assert main(["report", str(design), "--md", str(env.tmp / "r.md")]) == 0
     return env.capsys.readouterr().err
+
+
+@case("PART_FILE_IS_FOLDER")
+def _(env):
+    lib = load_library(env=False)
+    (env.tmp / "elsewhere" / "fresh.toml").mkdir(parents=True)
+    return _fails(lambda e: rec.new_part(lib, "fresh", "eeprom-i2c", e.tmp / "elsewhere"), env)
 
 
 @case("FILE_EXISTS")
@@ -3951,7 +3987,8 @@ def _(env):
     return _fails(lambda e: _compare().snapshot(design, {"format": "other"}), env)
 
 
-@case("SNAPSHOT_NOT_JSON", M.SNAPSHOT_NOT_JSON.format(detail="Expecting value"))
+@case("SNAPSHOT_NOT_JSON",
+      M.SNAPSHOT_NOT_JSON.format(detail="Expecting value at line 1, column 1"))
 def _(env):
     env.write("x.result.json", "nope")
     return _fails(lambda e: _compare().load_snapshot(e.tmp / "x.result.json"), env)
@@ -3971,7 +4008,8 @@ def _(env):
     return err
 
 
-@case("SNAPSHOT_IGNORED", M.SNAPSHOT_IGNORED.format(design="{design}"))
+@case("SNAPSHOT_IGNORED", M.SNAPSHOT_IGNORED.format(
+    advice=M.SNAPSHOT_SAVE_ANEW.format(design="{design}")))
 def _(env):
     design = env.write("design.toml", HEAD + I2C_BUS)
     env.write("design.result.json", '{"format": "pinlib.result/1", "parts": []}')
@@ -3980,9 +4018,62 @@ def _(env):
     return err.replace(str(design), "{design}")
 
 
+@case("SNAPSHOT_SAVE_ANEW", M.SNAPSHOT_SAVE_ANEW.format(design="{design}"))
+def _(env):
+    design = env.write("design.toml", HEAD + I2C_BUS)
+    other = env.write("other.toml", HEAD + I2C_BUS)
+    env.write("design.result.json", "{")
+    main(["check", str(design), str(other), "--against-snapshots", "--jobs", "1"])
+    return env.capsys.readouterr().out.replace(str(design), "{design}")
+
+
+@case("SNAPSHOT_IS_FOLDER")
+def _(env):
+    (env.tmp / "x.result.json").mkdir()
+    return _fails(lambda e: _compare().load_snapshot(e.tmp / "x.result.json"), env)
+
+
+@case("SNAPSHOT_MOVE_AWAY", M.SNAPSHOT_MOVE_AWAY.format(design="{design}"))
+def _(env):
+    design = env.write("design.toml", HEAD + I2C_BUS)
+    (env.tmp / "design.result.json").mkdir()
+    assert main(["check", str(design), "--save"]) == 2
+    return env.capsys.readouterr().err.replace(str(design), "{design}")
+
+
 @case("NEGATIVE_THRESHOLD")
 def _(env):
     return _fails(lambda e: _compare().parse_change_threshold("-5 %"), env)
+
+
+def _swap_read_only(env, *argv):
+    """A swap --write of a read-only design: what it printed on standard output."""
+    design = env.write("design.toml", HEAD + I2C_BUS)
+    design.chmod(0o444)
+    try:
+        args = [*argv, str(design)] if argv[0] == "--part" else [str(design), *argv]
+        assert main(["swap", *args, "--write"]) == 2
+    finally:
+        design.chmod(0o644)
+    return env.capsys.readouterr().out.replace(str(design), "{path}")
+
+
+@case("SWAP_NOT_WRITTEN", M.SWAP_NOT_WRITTEN.format(path="{path}"))
+def _(env):
+    return " ".join(_swap_read_only(env, "U2=rtc-i2c").split())  # wrapped at 80 columns
+
+
+@case("SWAP_LINE_NOT_WRITTEN")
+def _(env):
+    return " ".join(_swap_read_only(env, "--part", "eeprom-i2c=rtc-i2c").split())
+
+
+@case("SWAP_ONLY_EXTENDED",
+      M.SWAP_ONLY_EXTENDED.format(old="i2c-peripheral", where="U2 eeprom-i2c"))
+def _(env):
+    design = env.write("design.toml", HEAD + I2C_BUS)
+    main(["swap", "--part", "i2c-peripheral=rtc-i2c", str(design)])
+    return " ".join(env.capsys.readouterr().out.split())  # wrapped at 80 columns
 
 
 @case("EDIT_CHANGES_MORE")

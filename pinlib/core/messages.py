@@ -229,6 +229,13 @@ FIELD_PATH_NEEDED = "a field path is needed"
 VALUE_FIELD_NO_SUBFIELDS = "a value field has no sub-fields"
 PATH_STOPS_AT_NAMED_TABLE = "the path stops at a table of named items"
 FIELD_TAKES_NO_VALUE = "this field takes no recorded value: {what}"
+# pinlib parts record, after a figure that the part's title, copied from its class, states
+TITLE_STATES_OLD_FIGURE = ("the title '{title}' is the one of {cls}, which this part extends, "
+                           "and does not state the {field} now recorded ({value}): edit "
+                           "the title line of {file} if it no longer describes the part")
+FIELD_IS_YES_NO = "a yes/no setting (true or false), with no unit and no source of its own"
+FIELD_IS_SETTING = "a setting, not a value with a unit, and with no source of its own"
+SETTING_BY_HAND = "write it in the part file by hand: `{line}` {place}"
 PATH_STOPS_BEFORE_FIELD = "the path stops before a field"
 FIELD_WITHOUT_PIN = "a pin's field without its pin"
 # schema.py: a part's title
@@ -244,6 +251,7 @@ CANNOT_CREATE_FOLDER = "cannot create the folder: {reason}"
 CANNOT_REMOVE_OLD_CHART = ("cannot remove this chart of an earlier report ({reason}); the new "
                            "report does not link it")
 FILE_EXISTS = "the file exists"
+PART_FILE_IS_FOLDER = "a folder has the name of the new part's file"
 WOULD_BREAK_CHILD = "the value would break '{child}', which extends this part"
 VALUE_REFUSED = "the value is refused: {problem}"
 PART_WOULD_NOT_VALIDATE = "the part would not validate with this value"
@@ -760,9 +768,23 @@ SNAPSHOT_NOT_JSON = "the snapshot is not valid JSON: {detail}"
 NOT_A_SNAPSHOT = "not a pinlib result snapshot"
 SNAPSHOT_DAMAGED = "the snapshot is damaged: a value of the wrong kind"
 # printed by pinlib check and pinlib report after the error of a snapshot they ignore
-SNAPSHOT_IGNORED = ("the snapshot is ignored (no change list); `pinlib check {design} --save` "
-                    "replaces it")
+SNAPSHOT_IGNORED = "the snapshot is ignored (no change list); {advice}"
+# the advice beside a snapshot that cannot be used (pinlib/studies/snapshotfile.py)
+SNAPSHOT_SAVE_ANEW = "delete it or save a new one with `pinlib check {design} --save`"
+SNAPSHOT_IS_FOLDER = ("a folder stands where the snapshot file belongs (--save never writes "
+                      "over a folder)")
+SNAPSHOT_MOVE_AWAY = ("move or rename it, then `pinlib check {design} --save` writes the "
+                      "snapshot there")
 NEGATIVE_THRESHOLD = "a negative threshold"
+# pinlib swap --write, under the change list, when the design file could not be written
+SWAP_NOT_WRITTEN = ("{path} not changed: it could not be written (the error follows on "
+                    "standard error)")
+# pinlib swap --part OLD=NEW --write: a design's line when its file could not be written
+SWAP_LINE_NOT_WRITTEN = "not written (the error is on standard error)"
+# pinlib swap --part OLD=NEW: a design where OLD stands only as a class its parts extend
+SWAP_ONLY_EXTENDED = ("{old} is a class other parts extend ({where}); --part replaces a part "
+                      "as placed: `pinlib parts used-by {old}` lists the positions of the "
+                      "parts that extend it")
 EDIT_CHANGES_MORE = "editing the design file would change more than the parts"
 EDIT_LOST_PART = "the edited design does not hold the new part"
 # pinlib/studies/candidates.py

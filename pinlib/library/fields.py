@@ -243,12 +243,24 @@ def resolve_path(text: str) -> tuple[tuple[str, ...], ValueKind]:
         if sub is not None and i + 1 < len(parts):
             model, i = sub, i + 1
             continue
+        flat = _flat_args(info.annotation)
+        if sub is None and not sequence_of(info) and StatedList not in flat:
+            # a setting (a yes/no, a word): no unit and no source of its own, so not a
+            # record's; the hint says where it goes in the file.  The field is named,
+            # not echoed as the value ("got 'sclk.off_tolerant'")
+            table = ".".join(path[:-1])
+            place = f"under [{table}]" if table else "before the file's first table"
+            what = M.FIELD_IS_YES_NO if bool in flat else M.FIELD_IS_SETTING
+            raise LibraryError(M.FIELD_TAKES_NO_VALUE.format(what=what),
+                               field=".".join(path),
+                               hint=M.SETTING_BY_HAND.format(
+                                   line=f"{key} = true" if bool in flat else f"{key} = ...",
+                                   place=place))
         what = "a list (edit the file by hand)" if sequence_of(info) else (
             "a table" if sub is not None else
-            f"a list (edit the file by hand: {key} = {{ value = [...], source = \"...\" }})"
-            if StatedList in _flat_args(info.annotation) else "not a value with a unit")
+            f"a list (edit the file by hand: {key} = {{ value = [...], source = \"...\" }})")
         raise LibraryError(M.FIELD_TAKES_NO_VALUE.format(what=what), field=".".join(path),
-                           value=text, expected="a field such as c_in, v_il, timing.f_max")
+                           expected="a field such as c_in, v_il, timing.f_max")
     if len(path) >= 2 and path[-2] == "pins" and path[-1] in model.fields() \
             and value_kind(model.fields()[path[-1]]) is not None:
         # "c_in" read as a pin named c_in: the field is there, its pin is missing

@@ -265,8 +265,14 @@ def _provenance_lines(basis: str, source: str, today: _dt.date) -> list[str]:
 def write_new_part(library: loader.Library, new_id: str, target: Path, text: str) -> Path:
     """Write a new part file under its lock: refused when the file exists or when the
     part would not load beside the library; atomic (a failed write leaves nothing)."""
+    from pinlib.core.pathkind import FILE, FOLDER, OTHER, path_kind
+
     with file_lock(target):
-        if target.exists():
+        kind = path_kind(target)[0]
+        if kind == FOLDER:  # "the file exists" sent the reader looking for a file
+            raise LibraryError(M.PART_FILE_IS_FOLDER, file=str(target),
+                               hint="choose another id or folder, or move that folder away")
+        if kind in (FILE, OTHER):
             raise LibraryError(M.FILE_EXISTS, file=str(target),
                                hint="choose another id or folder")
         _validate(library, new_id, target, text)
@@ -527,7 +533,7 @@ def record_value(library: loader.Library, part_id: str, field: str, value_text: 
                            field="id", value=part_id,
                            hint=f"make a team part first: pinlib parts new {part_id}-v2 "
                                 f"--from {part_id} --into FOLDER")
-    keys, _kind = resolve_field(library, part_id, field)
+    keys, _kind = resolve_field(library, part_id, field, value_text)
     dotted = ".".join(keys)
     if not isinstance(value_text, str) or not value_text.strip():
         raise InputError(M.VALUE_NEEDED, field=dotted, value=value_text,
@@ -581,7 +587,8 @@ def record_value(library: loader.Library, part_id: str, field: str, value_text: 
     return path
 
 
-def resolve_field(library: loader.Library, part_id: str, field: str):
+def resolve_field(library: loader.Library, part_id: str, field: str,
+                  value_text: str | None = None):
     """The key path and kind of ``field`` (:func:`pinlib.library.fields.resolve_path`);
     a path that names no value is refused at the part's file, and at the line of the
     table the field would go in where the file has it (``sda.c_inn`` at ``[pins.sda]``).
@@ -594,6 +601,9 @@ def resolve_field(library: loader.Library, part_id: str, field: str):
         The part the value is for.
     field : str
         ``PIN.FIELD``, ``timing.FIELD``, ``supply.min``...
+    value_text : str, optional
+        The value to be recorded, echoed by a refusal of a field that takes no recorded
+        value (a yes/no setting: ``got 'true'``).
 
     Returns
     -------
@@ -608,6 +618,9 @@ def resolve_field(library: loader.Library, part_id: str, field: str):
     try:
         return resolve_path(field)
     except LibraryError as err:
+        if err.value is None and value_text is not None:  # the value, not the field
+            err = type(err)(err.problem, file=err.file, line=err.line, field=err.field,
+                            value=value_text, expected=err.expected, hint=err.hint)
         pf = library.files.get(part_id)
         if pf is None:
             raise

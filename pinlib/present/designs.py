@@ -36,10 +36,12 @@ def _counts_text(s) -> str:
 
 
 def _fitted_summary(s, width: int, cols: int) -> list[str]:
-    """A design's line at most ``cols`` wide: as :func:`summary_line` (its path padded to
-    ``width``) where it fits; else with only the title cut, the path unpadded if need be;
-    else the path on a line of its own and the rest under it, an error's message wrapped
-    whole (never cut), the counts kept and the title cut."""
+    """A design's line at most ``cols`` wide, nothing of it cut: as :func:`summary_line`
+    (its path padded to ``width``) where it fits; else wrapped at its spaces, the rest
+    indented under it, the status and path kept on the first line (unpadded if need
+    be); else the path on a line of its own and the rest wrapped under it (an error's
+    message, or the counts and the title, whole)."""
+    from pinlib.core.wrapping import NBSP
     from pinlib.present.terminal import wrap
 
     word = f"{_WORDS.get(s.status, s.status.upper()):<6}"
@@ -48,20 +50,13 @@ def _fitted_summary(s, width: int, cols: int) -> list[str]:
         line = (word + f"{s.path:<{pad}}  " + tail).rstrip()
         if len(line) <= cols:
             return [line]
-    if s.error is None:
-        essential = _counts_text(s)
-        for pad in (width, 0):
-            line = word + f"{s.path:<{pad}}  " + essential
-            if len(line) + 2 <= cols:  # room for " …" at least
-                return [(line + tail[len(essential):])[:cols - 1].rstrip() + "…"]
-        rest = "    " + tail
-        if len(rest) <= cols:
-            return _own_line(word, s.path, cols) + [rest]
-        if len("    " + essential) + 2 <= cols:  # the title cut, the counts whole
-            return _own_line(word, s.path, cols) + [rest[:cols - 1].rstrip() + "…"]
-        # counts too long for a line (warnings beyond soft limits counted): wrapped whole,
-        # the title left to 'pinlib check DESIGN'
-        return _own_line(word, s.path, cols) + wrap(essential, cols, "    ", "    ")
+    for pad in (width, 0):
+        # the status, the path and its padding one unbreakable word; the tail's first
+        # word after it on the same line, else the next layout
+        head = (word + f"{s.path:<{pad}}").replace(" ", NBSP) + NBSP * 2
+        lines = wrap(head + tail, cols, "", "    ", break_long=False)
+        if len(lines[0]) <= cols and len(lines[0]) > len(head):
+            return lines
     return _own_line(word, s.path, cols) + wrap(tail, cols, "    ", "    ", break_long=False)
 
 
@@ -100,9 +95,8 @@ def _snapshot_lines(s, cols: int | None) -> list[str]:
 
 def format_many(summaries, cols: int | None = None) -> str:
     """Every design's line (and snapshot changes), then the counts of designs; ``cols``:
-    characters per line (None: no limit), a design's line fitted to it (its title cut
-    first; the status, path, counts and an error's message stay whole,
-    :func:`_fitted_summary`) and the closing line wrapped."""
+    characters per line (None: no limit), a design's line wrapped to it, nothing cut
+    (:func:`_fitted_summary`), and the closing line wrapped."""
     from pinlib.present.terminal import wrap
 
     width = max(len(s.path) for s in summaries)
@@ -147,7 +141,9 @@ def _swap_lines(s, width: int) -> list[str]:
         return [head + M.DESIGN_NOT_LOADED.format(path=s.path, message=s.error)
                 .removeprefix(f"{s.path}: ")]
     if s.status == "unused":
-        return [head + "no position to change"]
+        through = "; ".join(M.SWAP_ONLY_EXTENDED.format(old=old, where=", ".join(where))
+                            for old, where in s.extended.items())
+        return [head + "no position to change" + (f": {through}" if through else "")]
     where = ", ".join(f"{r} {s.olds[r]} → {n}" for r, n in s.swaps.items())
     if s.status == "refused":
         out = [head + f"refused ({where}); not changed"]
@@ -160,6 +156,8 @@ def _swap_lines(s, width: int) -> list[str]:
                 else "")
              + f"{_counted(len(c.figure_changes), 'figure')} moved")
     written = "; written" if s.written else ""
+    if s.write_error is not None:
+        written = "; " + M.SWAP_LINE_NOT_WRITTEN
     out = [head + f"{s.before.upper()} → {s.after.upper()}  {where}; {moved}{written}"]
     out += ["    " + ch.format() for ch in c.status_changes]
     out += ["    " + ch.format() for ch in c.margin_changes]

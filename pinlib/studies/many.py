@@ -120,7 +120,7 @@ def check_one(path, library_folders=(), against_snapshots: bool = False,
 
 def _against_snapshot(out: DesignSummary, design, result, threshold) -> None:
     from pinlib.studies.compare import DEFAULT_THRESHOLD, compare_with_snapshot
-    from pinlib.studies.snapshotfile import may_have_snapshot
+    from pinlib.studies.snapshotfile import may_have_snapshot, snapshot_advice, snapshot_path
 
     if not may_have_snapshot(design):
         out.snapshot = "none"
@@ -131,7 +131,8 @@ def _against_snapshot(out: DesignSummary, design, result, threshold) -> None:
                                     damaged=damaged)
     if changes is None:
         out.snapshot = "damaged" if damaged else "none"
-        out.notes += [err.message for err in damaged]
+        advice = snapshot_advice(snapshot_path(design), out.path)  # the design named
+        out.notes += [err.with_hint(advice).message for err in damaged]
         return
     out.snapshot = "compared"
     out.changes = changes.to_json()
@@ -279,8 +280,9 @@ class SwapSummary:
 
     ``status`` is ``swapped`` (evaluated before and after), ``refused`` (a position where
     the new part cannot serve: ``refused`` holds each position's reasons, nothing is
-    evaluated), ``unused`` (no old part stands in it) or ``error`` (not loaded).
-    ``design`` is the loaded design (for writing the file), not kept in JSON.
+    evaluated), ``unused`` (no old part stands in it) or ``error`` (not loaded).  A
+    swapped design that ``--write`` could not write keeps its changes, with
+    ``write_error``.  ``design`` is the loaded design (for writing the file), not kept in JSON.
     """
 
     path: str
@@ -294,11 +296,13 @@ class SwapSummary:
     changes: object = None                           # a ChangeList
     error: str | None = None
     written: bool = False
+    write_error: str | None = None                   # why --write could not write it
+    extended: dict = field(default_factory=dict)     # unused: old id -> ["U2 eeprom-x"]
     design: object = None
 
     @property
     def exit_code(self) -> int:
-        if self.status in ("error", "refused"):
+        if self.status in ("error", "refused") or self.write_error is not None:
             return 2
         return 1 if self.after == "fail" else 0
 
@@ -310,10 +314,30 @@ class SwapSummary:
             out["error"] = self.error
         if self.refused:
             out["refused"] = self.refused
+        if self.extended:
+            out["extended"] = self.extended
         if self.status == "swapped":
             out.update(before=self.before, after=self.after, written=self.written,
                        changes=self.changes.to_json())
+            if self.write_error is not None:
+                out["write_error"] = self.write_error
         return out
+
+
+def _extending(design, parts: dict[str, str]) -> dict[str, list[str]]:
+    """For each old part id that stands in the design only as a class its placed parts
+    extend: those positions (``U2 eeprom-x``), which ``--part`` does not change."""
+    lib = design.library
+    out: dict[str, list[str]] = {}
+    for bus in design.buses:
+        for d in bus.devices:
+            if d.part_id not in lib.files:
+                continue
+            for old in lib.chain(d.part_id)[1:]:
+                where = f"{d.ref} {d.part_id}"
+                if old in parts and where not in out.setdefault(old, []):
+                    out[old].append(where)
+    return out
 
 
 def swap_in_design(path, parts: dict[str, str], library_folders=(),
@@ -335,6 +359,7 @@ def swap_in_design(path, parts: dict[str, str], library_folders=(),
                     out.swaps[d.ref], out.olds[d.ref] = parts[d.part_id], d.part_id
         if not out.swaps:
             out.status = "unused"
+            out.extended = _extending(design, parts)
             return out
         for ref, new in out.swaps.items():
             old, reasons = swap_refusals(design, ref, new, field="--part")

@@ -12,7 +12,7 @@ from pathlib import Path
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError
 
-__all__ = ["snapshot_path", "may_have_snapshot"]
+__all__ = ["snapshot_path", "may_have_snapshot", "snapshot_advice"]
 
 
 def snapshot_path(design_path) -> Path:
@@ -44,3 +44,16 @@ def may_have_snapshot(design) -> bool:
     except OSError:
         return True
     return True
+
+
+def snapshot_advice(snapshot, design=None) -> str:
+    """What to do with a snapshot that cannot be used: a folder (or a device, a pipe) in
+    its place is moved away first, since ``--save`` never writes over one; a damaged file
+    is deleted or saved anew.  ``design``: the design file as the user named it (the
+    command to run names it; ``DESIGN`` where it is not known)."""
+    from pinlib.core.pathkind import FOLDER, OTHER, path_kind
+
+    name = "DESIGN" if design is None else str(design)
+    if path_kind(snapshot)[0] in (FOLDER, OTHER):
+        return M.SNAPSHOT_MOVE_AWAY.format(design=name)
+    return M.SNAPSHOT_SAVE_ANEW.format(design=name)

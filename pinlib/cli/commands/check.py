@@ -211,7 +211,7 @@ def _many_json(s) -> dict:
 def _run_one(args) -> int:
     from pinlib.engines.dispatch import check_design
     from pinlib.model.design import load_design
-    from pinlib.studies.snapshotfile import may_have_snapshot
+    from pinlib.studies.snapshotfile import may_have_snapshot, snapshot_advice, snapshot_path
 
     design = load_design(args.design, library_folders=args.library)
     problems = design.library.problems  # files that could not be read, parts asked for
@@ -236,8 +236,8 @@ def _run_one(args) -> int:
         changes = compare_with_snapshot(design, result, threshold, damaged=damaged)
         for err in damaged:  # named, then ignored: the check itself still runs
             # its own advice (delete it, or save anew) in place of the error's: once
-            _warn("pinlib: warning: " + err.with_hint(
-                M.SNAPSHOT_IGNORED.format(design=args.design)).message)
+            _warn("pinlib: warning: " + err.with_hint(M.SNAPSHOT_IGNORED.format(
+                advice=snapshot_advice(snapshot_path(design), args.design))).message)
     extra = _what_if(design, args, result)
     if args.json:
         out = result.to_json()

@@ -585,7 +585,7 @@ def _run_record(args) -> int:
 
     lib = _load(args)
     _refuse_unknown(lib, args.id, "ID", args)
-    keys, _ = resolve_field(lib, args.id, args.field)
+    keys, _ = resolve_field(lib, args.id, args.field, args.value)
     was = _value_before(lib, args.id, ".".join(keys), typ_given=args.typ is not None)
     path = record_value(lib, args.id, args.field, args.value, args.source,
                         basis=args.basis, typ=args.typ)
@@ -600,7 +600,70 @@ def _run_record(args) -> int:
         # over is said, not lost in silence
         print(fitted("  " + was))
     _warn_implausible(after, args.id, ".".join(keys))
+    _note_stale_title(after, args.id, tuple(keys), path)
     return 0
+
+
+#: The fields a part's title states by custom ("..., 1.7 to 5.5 V, up to 104 MHz"), with
+#: their unit and how a title writes them: a frequency with its unit, or a supply range
+#: ("2.7 to 3.6 V", "1.8-5.5 V") or one voltage.
+_TITLE_FIGURES = {
+    ("timing", "f_max"): ("Hz", r"(\d+(?:\.\d+)?)\s*([kMG]?)Hz\b"),
+    ("supply", "min"): ("V", r"(\d+(?:\.\d+)?)(?:\s*(?:to|-|–)\s*(\d+(?:\.\d+)?))?\s*V\b"),
+    ("supply", "max"): ("V", r"(\d+(?:\.\d+)?)(?:\s*(?:to|-|–)\s*(\d+(?:\.\d+)?))?\s*V\b"),
+}
+
+
+def _title_figures(title: str, unit: str, pattern: str) -> list[float]:
+    """The numbers of ``unit`` a title states, in SI (``up to 104 MHz`` -> [104e6])."""
+    import re
+
+    scale = {"": 1.0, "k": 1e3, "M": 1e6, "G": 1e9}
+    out: list[float] = []
+    for m in re.finditer(pattern, title):
+        if unit == "Hz":
+            out.append(float(m.group(1)) * scale[m.group(2)])
+        else:
+            out += [float(g) for g in m.groups() if g is not None]
+    return out
+
+
+def _note_stale_title(lib, pid: str, keys: tuple, path) -> None:
+    """After a record of a figure a title states (f_max, the supply range): a note when
+    the part's title is its class's word for word (``parts new`` copies it) and states
+    that figure, none of it the value now recorded ("up to 104 MHz" over an f_max of
+    50 MHz): the title is the part's own text, which pinlib does not rewrite."""
+    import math
+
+    from pinlib.core.errors import PinlibError
+    from pinlib.core.quantity import format_si
+    from pinlib.present.terminal import fitted
+
+    figure = _TITLE_FIGURES.get(keys[-2:]) if len(keys) == 2 else None
+    if figure is None:
+        return
+    try:
+        part = lib.get(pid)
+        parent = lib.files[pid].raw.get("extends")
+        cls = lib.get(parent) if isinstance(parent, str) and parent in lib.files else None
+    except PinlibError:
+        return  # the library's warning says what is wrong
+    if cls is None or part.title != cls.title:
+        return  # a title of the part's own: its writer's words
+    value = part
+    for k in keys:
+        value = getattr(value, k, None)
+    value = getattr(value, "value", value)
+    if not isinstance(value, (int, float)) or isinstance(value, bool):
+        return
+    unit, pattern = figure
+    stated = _title_figures(part.title, unit, pattern)
+    if not stated or any(math.isclose(x, value, rel_tol=1e-6) for x in stated):
+        return
+    print(fitted("note: " + M.TITLE_STATES_OLD_FIGURE.format(
+        title=part.title, cls=cls.id, field=".".join(keys),
+        value=format_si(value, unit, digits=_READ_DIGITS), file=_rel(path)), sys.stderr),
+        file=sys.stderr)
 
 
 #: Significant digits of a value echoed as read: as many as a datasheet gives, so that

@@ -170,6 +170,7 @@ def run(args) -> int:
     from pinlib.present.review import build_review
     from pinlib.present.terminal import fitted
     from pinlib.studies.compare import DEFAULT_THRESHOLD, compare_with_snapshot
+    from pinlib.studies.snapshotfile import snapshot_advice, snapshot_path
 
     if args.seed is not None and args.monte_carlo is None:
         raise InputError(M.SEED_WITHOUT_MONTE_CARLO, field="--seed", value=args.seed,
@@ -195,8 +196,8 @@ def run(args) -> int:
     damaged: list = []
     changes = compare_with_snapshot(design, result, threshold, damaged=damaged)
     for err in damaged:  # named, then ignored: the report is written without changes
-        print(fitted("pinlib: warning: " + err.with_hint(
-            M.SNAPSHOT_IGNORED.format(design=args.design)).message, sys.stderr),
+        print(fitted("pinlib: warning: " + err.with_hint(M.SNAPSHOT_IGNORED.format(
+            advice=snapshot_advice(snapshot_path(design), args.design))).message, sys.stderr),
             file=sys.stderr)
     mc = None
     if args.monte_carlo is not None:

@@ -65,6 +65,40 @@ def threshold_type(text: str) -> float:
                                          ) from None
 
 
+class _SwapHelp(HelpLayout):
+    """The usage in the command's two forms, as it takes them: ``DESIGN REF=PART
+    [REF=PART ...]`` (one substitution at least), and ``--part OLD=NEW DESIGN
+    [DESIGN ...]`` (the positionals then all designs; ``--detail`` is for one design)."""
+
+    def _format_usage(self, usage, actions, groups, prefix):
+        import copy
+
+        if usage is not None:
+            return super()._format_usage(usage, actions, groups, prefix)
+        one, many, part = [], [], None
+        for a in actions:
+            if a.dest == "parts":
+                part = copy.copy(a)
+                part.required = True  # shown bare: the second form needs it
+            elif a.dest == "swaps":
+                needed = copy.copy(a)
+                needed.nargs = "+"  # REF=PART [REF=PART ...]
+                one.append(needed)
+                designs = copy.copy(a)
+                designs.metavar = "DESIGN"  # [DESIGN ...]
+                many.append(designs)
+            elif a.dest == "detail":
+                one.append(a)
+            else:
+                one.append(a)
+                many.append(a)
+        if part is not None:
+            many.append(part)  # after the other options (the positionals follow them)
+        first = super()._format_usage(None, one, groups, prefix)
+        second = super()._format_usage(None, many, groups, " " * len(prefix or "usage: "))
+        return first.rstrip("\n") + "\n" + second
+
+
 def add_parser(sub) -> None:
     p = sub.add_parser(
         "swap",
@@ -74,7 +108,7 @@ def add_parser(sub) -> None:
                     "the part values behind the change. --write edits the design file in "
                     "place, keeping its comments and formatting.",
         epilog=EXAMPLES,
-        formatter_class=HelpLayout,
+        formatter_class=_SwapHelp,
     )
     p.add_argument("design", metavar="DESIGN", help="the design file (.toml)")
     p.add_argument("swaps", metavar="REF=PART", nargs="*",
@@ -191,7 +225,14 @@ def run(args) -> int:
     old_snap, new_snap = snapshot(design, before), snapshot(after_design, after)
     changes = compare(old_snap, new_snap, threshold=threshold)
     rows = figure_rows(old_snap, new_snap, threshold=threshold)
-    written = _write(design, swaps) if args.write else False
+    written, write_error = False, None
+    if args.write:
+        from pinlib.core.errors import PinlibError
+
+        try:
+            written = _write(design, swaps)
+        except PinlibError as err:  # the evaluation is printed first, then this error
+            write_error = err
     if written:
         _note_option_folders(design, swaps.values(), args.library)
     swap_rows = _swap_rows(design, swaps)
@@ -203,10 +244,14 @@ def run(args) -> int:
                    "swaps": swap_rows, "threshold": threshold, "written": written,
                    "before": before.to_json(), "after": after.to_json(),
                    "figures": [r.to_json() for r in rows], "changes": changes.to_json()})
+        if write_error is not None:
+            raise write_error  # on standard error, exit 2: the file was not written
         return after.exit_code()
     out = _text(design, swap_rows, rows, before, after, changes,
                 detail=getattr(args, "detail", False))
-    if written:
+    if write_error is not None:
+        out.append(M.SWAP_NOT_WRITTEN.format(path=design.path))
+    elif written:
         out.append(f"Wrote {design.path} (only the part of {', '.join(swaps)} changed).")
     elif args.write:
         out.append(f"{design.path} already holds these parts; nothing written.")
@@ -222,6 +267,9 @@ def run(args) -> int:
     from pinlib.present.visible import write_coloured
 
     write_coloured(sys.stdout, _fitted(out))
+    if write_error is not None:
+        sys.stdout.flush()  # the change list before the error that follows it
+        raise write_error  # on standard error, exit 2: the file was not written
     return after.exit_code()
 
 
@@ -476,8 +524,11 @@ def _run_many(args) -> int:
         if s.status == "swapped" and args.write:
             try:
                 s.written = _write(s.design, s.swaps)
-            except PinlibError as err:
-                s.status, s.error = "error", err.message
+            except PinlibError as err:  # evaluated all the same: its changes are kept
+                s.write_error = err.message
+                from pinlib.present.terminal import fitted
+
+                print(fitted("pinlib: error: " + err.message, sys.stderr), file=sys.stderr)
             if s.written:
                 _note_option_folders(s.design, s.swaps.values(), args.library)
         if s.error is not None:

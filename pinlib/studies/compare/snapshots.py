@@ -13,16 +13,17 @@ from typing import Any
 from pinlib import __version__
 from pinlib.core import messages as M
 from pinlib.core.errors import InputError, PinlibError
+from pinlib.core.pathkind import FOLDER, path_kind
 from pinlib.core.quantity import Threshold
 from pinlib.core.records import Record
-from pinlib.core.tomlfile import UTF8_BOM, atomic_write, read_regular
+from pinlib.core.tomlfile import UTF8_BOM, atomic_write, read_regular, refuse_irregular_target
 from pinlib.library.loader import BUILTIN_DIR
 from pinlib.library.schema import Part
 from pinlib.library.values import Sourced, StatedList
 from pinlib.model.result import FORMAT as RESULT_FORMAT
 from pinlib.model.result import json_number
 from pinlib.studies.snapshotcheck import check_snapshot
-from pinlib.studies.snapshotfile import snapshot_path
+from pinlib.studies.snapshotfile import snapshot_advice, snapshot_path
 
 
 def _now() -> str:
@@ -273,6 +274,8 @@ def save_snapshot(design, result, path=None) -> Path:
     The file is written atomically (a reader sees the old snapshot or the new one).
     """
     target = Path(path) if path is not None else snapshot_path(design)
+    # a folder in its place: refused with the advice that works (move it away)
+    refuse_irregular_target(target, hint=snapshot_advice(target, getattr(design, "path", None)))
     text = json.dumps(snapshot(design, result), indent=2, ensure_ascii=False) + "\n"
     atomic_write(target, text)
     return target
@@ -282,30 +285,34 @@ def save_snapshot(design, result, path=None) -> Path:
 MAX_SNAPSHOT_BYTES = 64 * 2**20
 
 
-def load_snapshot(path) -> dict | None:
-    """Read a snapshot; None when the file does not exist.
+def load_snapshot(path, design=None) -> dict | None:
+    """Read a snapshot; None when the file does not exist.  ``design``: the design file as
+    the user named it, for the advice an error gives (``DESIGN`` where not given).
 
     Raises
     ------
     InputError
         When the file is not a regular file of at most :data:`MAX_SNAPSHOT_BYTES`, not
         UTF-8 JSON, not a pinlib result, or not shaped as a snapshot
-        (:func:`pinlib.studies.snapshotcheck.check_snapshot` names the field).
+        (:func:`pinlib.studies.snapshotcheck.check_snapshot` names the field); its hint
+        says what to do (:func:`pinlib.studies.snapshotfile.snapshot_advice`).
     """
     path = Path(path)
-    hint = "delete it or save a new one with `pinlib check DESIGN --save`"
+    hint = snapshot_advice(path, design)
+    if path_kind(path)[0] == FOLDER:
+        raise InputError(M.SNAPSHOT_IS_FOLDER, file=str(path), hint=hint)
     try:
         raw = read_regular(path, max_bytes=MAX_SNAPSHOT_BYTES)
     except InputError as exc:
         if exc.problem == M.FILE_NOT_FOUND:
             return None
-        raise
+        raise exc.with_hint(hint) from None
     try:
         data = json.loads(raw.removeprefix(UTF8_BOM).decode("utf-8"))  # a BOM as if absent
     except UnicodeDecodeError:
         raise InputError(M.NOT_UTF8, file=str(path), hint=hint) from None
     except json.JSONDecodeError as exc:
-        raise InputError(M.SNAPSHOT_NOT_JSON.format(detail=exc.msg), file=str(path),
+        raise InputError(M.SNAPSHOT_NOT_JSON.format(detail=_json_reason(exc)), file=str(path),
                          line=exc.lineno, hint=hint) from None
     except RecursionError:
         raise InputError(M.SNAPSHOT_NOT_JSON.format(detail="nested too deep"),
@@ -313,6 +320,18 @@ def load_snapshot(path) -> dict | None:
     if not isinstance(data, dict) or data.get("format") != RESULT_FORMAT:
         raise InputError(M.NOT_A_SNAPSHOT, file=str(path), field="format",
                          value=data.get("format") if isinstance(data, dict) else None,
-                         expected=f'"{RESULT_FORMAT}"')
-    check_snapshot(data, path)
+                         expected=f'"{RESULT_FORMAT}"', hint=hint)
+    try:
+        check_snapshot(data, path)
+    except InputError as exc:
+        raise exc.with_hint(exc.hint or hint) from None
     return data
+
+
+def _json_reason(exc: json.JSONDecodeError) -> str:
+    """The JSON parser's reason whole, with its line and column: its own message stops at
+    "at" (``Unterminated string starting at``), the place being left to its str()."""
+    where = f"line {exc.lineno}, column {exc.colno}"
+    if exc.msg.endswith(" at"):
+        return f"{exc.msg} {where}"
+    return f"{exc.msg} at {where}"
