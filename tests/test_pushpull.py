@@ -932,6 +932,18 @@ def test_an_input_transition_time_is_checked_at_its_receiver(tmp_path, limit, st
     (ln,) = evaluate_bus(d.bus("rst"), d).lines
     routed = ln.check("input-transition")
     assert routed.value == pytest.approx(rise, rel=2e-3) and routed.status == status
+    # the fix offers a Schmitt-trigger receiver only where this one has no hysteresis
+    if status == "fail":
+        assert "Schmitt-trigger" in c.fix
+        with (tmp_path / "parts" / "slow-in.toml").open("a", encoding="utf-8") as f:
+            f.write('hysteresis = "0.1 VDD"\n')
+        d = _builtin_design(tmp_path, 'library = ["parts"]\n\n' + _OD_RESET.format(
+            extra=', pullup = "10 kΩ"').replace('"display-controller-spi"', '"slow-in"'),
+            name="h.toml")
+        (ln,) = evaluate_bus(d.bus("rst"), d).lines
+        hyst = ln.check("input-transition")
+        assert hyst.status == "fail" and "lines.reset.pullup" in hyst.fix
+        assert "Schmitt" not in hyst.fix
     # a receiver that states none gets no such check
     d = _builtin_design(tmp_path, _OD_RESET.format(extra=', pullup = "10 kΩ"'), name="n.toml")
     (ln,) = evaluate_bus(d.bus("rst"), d).lines

@@ -380,10 +380,13 @@ def _transition_check(rx: Endpoint, cases: dict, routed: bool, warn: float,
     fix = None
     if edge > limit:
         drv = cases[by].driver if by is not None else None
-        fix = (f"a smaller pull-up speeds the rise (lines.{signal}.pullup), or a receiver "
-               "with a Schmitt-trigger input" if drv is not None and drv.pin.drive == "open-drain"
+        fix = (f"a smaller pull-up speeds the rise (lines.{signal}.pullup)"
+               if drv is not None and drv.pin.drive == "open-drain"
                else "a stronger driver or less load speeds the edge (a series resistor "
-                    "slows it), or a receiver with a Schmitt-trigger input")
+                    "slows it)")
+        # a receiver whose input already has hysteresis is no better for another one
+        if not (rx.level("hysteresis") or 0.0) > 0.0:
+            fix += ", or a receiver with a Schmitt-trigger input"
     many = len(cases) > 1
     return soft_limit(check_max(
         "input-transition", edge, limit, "s", rx.source("t_transition_max"),
