@@ -241,7 +241,9 @@ def _show_value(entry: dict | None) -> str:
             shown += f" ({format_si(entry['value'], 'V')} at {format_si(entry['vdd'], 'V')})"
         return shown
     v = entry.get("value")
-    if isinstance(v, (bool, str)) or v is None:
+    if isinstance(v, bool):  # a setting, as `pinlib parts show` prints it
+        return "true" if v else "false"
+    if isinstance(v, str) or v is None:
         return format_figure(v, "")
     if isinstance(v, list):  # a list the part states (its SPI modes), as the file writes it
         return "[" + ", ".join(str(x) for x in v) + "]"
@@ -258,8 +260,44 @@ def _same_value(a: dict | None, b: dict | None) -> bool:
                                  abs_tol=1e-15))
     va, vb = a.get("value"), b.get("value")
     if _is_number(va) and _is_number(vb):
-        return math.isclose(va, vb, rel_tol=1e-12, abs_tol=0.0)
-    return va == vb and a.get("unit") == b.get("unit")
+        same = math.isclose(va, vb, rel_tol=1e-12, abs_tol=0.0)
+    else:
+        same = va == vb and a.get("unit") == b.get("unit")
+    return same and (_basis(a) == _basis(b) or not (_stated(a) and _stated(b)))
+
+
+def _stated(entry: dict) -> bool:
+    """A value a part states with its provenance (a number, a level, a list of SPI
+    modes), whose basis counts in a comparison; not a setting (``function``, ``drive``,
+    ``off_tolerant``), whose basis is only its file's."""
+    return "text" in entry or "scale" in entry or isinstance(entry.get("value"), list)
+
+
+def _basis(entry: dict | None) -> str | None:
+    return (entry or {}).get("basis") or None
+
+
+def _provenance_bits(shown: dict, part_id: str | None, *, with_basis: bool = True
+                     ) -> list[str]:
+    """What a value line says of where one side's value comes from: its source (with
+    its basis in brackets unless ``with_basis`` is false, where the line shows the basis
+    moving), else its basis, and the part file that set it where that is not
+    ``part_id``; a setting no file states, that it is the part format's default."""
+    bits = []
+    basis = _basis(shown)
+    tag = f" [{basis}]" if basis and with_basis else ""
+    source = str(shown.get("source") or "").strip()  # a blank one names nothing
+    if source:
+        bits.append(f"source: {source}{tag}")
+    elif basis in NEEDS_SOURCE:
+        bits.append(f"basis: {basis}, no source named" if with_basis else "no source named")
+    elif tag:
+        bits.append(f"basis: {basis}")
+    if shown.get("default"):
+        bits.append("not stated: the part format's default")
+    if shown.get("origin") and shown["origin"] != part_id:
+        bits.append(f"set in {shown['origin']}")
+    return bits
 
 
 @value_class
@@ -284,23 +322,36 @@ class ValueChange:
         its :attr:`timing_pin`), else None."""
         return _pin_of(self.key) or self.timing_pin
 
-    def format(self, ref: str, part_id: str | None = None) -> str:
+    @property
+    def basis_moved(self) -> bool:
+        """True where both sides state the value and its basis differs (a class's typical
+        value that a datasheet's replaced, the same number or not)."""
+        return (self.old is not None and self.new is not None and _stated(self.old)
+                and _stated(self.new) and _basis(self.old) != _basis(self.new))
+
+    def format(self, ref: str, part_id: str | None = None,
+               old_part: str | None = None) -> str:
         """``U4 SDA c_in 8 pF → 80 pF, source: … [estimate]``; the part file that set
-        the value is named when it is not ``part_id`` itself (an inherited value)."""
-        text = f"{ref} {self.label} {_show_value(self.old)} {_ARROW} {_show_value(self.new)}"
-        shown = self.new if self.new is not None else self.old
-        bits = []
-        basis = f" [{shown['basis']}]" if shown.get("basis") else ""
-        source = str(shown.get("source") or "").strip()  # a blank one names nothing
-        if source:
-            bits.append(f"source: {source}{basis}")
-        elif shown.get("basis") in NEEDS_SOURCE:
-            bits.append(f"basis: {shown['basis']}, no source named")
-        elif basis:
-            bits.append(f"basis: {shown['basis']}")
-        if shown.get("origin") and shown["origin"] != part_id:
-            bits.append(f"set in {shown['origin']}")
-        return text + (", " + ", ".join(bits) if bits else "")
+        the value is named when it is not ``part_id`` itself (an inherited value).  A
+        basis that changed shows both, after the value (``8 pF [generic → datasheet]``,
+        the number shown once where it stayed); a value the new part does not state
+        names whose the source shown is (``old_part``'s, the part before)."""
+        old, new = _show_value(self.old), _show_value(self.new)
+        text = f"{ref} {self.label} {new if old == new else f'{old} {_ARROW} {new}'}"
+        moved = self.basis_moved
+        if moved:
+            text += (f" [{_basis(self.old) or 'no basis'} {_ARROW} "
+                     f"{_basis(self.new) or 'no basis'}]")
+        gone = self.new is None and self.old is not None
+        shown = self.old if gone else self.new
+        owner = (old_part or part_id) if gone else part_id
+        bits = _provenance_bits(shown, owner, with_basis=not moved)
+        if not gone:
+            return text + (", " + ", ".join(bits) if bits else "")
+        whose = (f"not stated by {part_id}" if part_id and old_part and part_id != old_part
+                 else "no longer stated")
+        before = f"{old_part}'s " if old_part and old_part != part_id else "before: "
+        return text + f", {whose}" + (f"; {before}" + ", ".join(bits) if bits else "")
 
     def to_json(self) -> dict:
         return {"key": self.key, "label": self.label, "old": self.old, "new": self.new,
@@ -331,8 +382,8 @@ class PartChange:
             head += f"; on {', '.join(self.buses)}"
         if self.old_part is None or self.new_part is None:
             return [head]  # a device placed or removed: its values are not changes
-        shown_part = self.new_part if self.new_part is not None else self.old_part
-        return [head] + ["  " + v.format(self.ref, shown_part) for v in self.connected
+        return [head] + ["  " + v.format(self.ref, self.new_part, self.old_part)
+                         for v in self.connected
                          ] + ["  " + line for line in self.unconnected_lines()]
 
     @property

@@ -88,6 +88,38 @@ def _sourced_entry(v: Sourced, vdd: float | None, library) -> dict:
 
 
 
+def _setting_provenance(part: Part, key: str, library) -> dict:
+    """Where a setting (``function``, ``drive``, ``off_tolerant``) comes from: the part
+    file of the part's chain, child first, that states it (``origin``) with that file's
+    provenance basis and source (``"provenance": "part"``); ``"default": True`` where
+    no file states it (the part format's default); nothing without a library."""
+    files = getattr(library, "files", None)
+    if not files or part.id not in files:
+        return {}
+    loc = [int(k) if k.isdigit() else k
+           for k in key.replace("[", ".").replace("]", "").split(".")]
+    for pid in library.chain(part.id):
+        raw = files[pid].raw
+        for k in loc:
+            if isinstance(raw, dict) and isinstance(k, str) and k in raw:
+                raw = raw[k]
+            elif isinstance(raw, list) and isinstance(k, int) and k < len(raw):
+                raw = raw[k]
+            else:
+                raw = None
+                break
+        if raw is None:
+            continue
+        prov = files[pid].raw.get("provenance")
+        prov = prov if isinstance(prov, dict) else {}
+        out: dict[str, Any] = {"origin": pid, "provenance": "part"}
+        for name in ("basis", "source"):
+            if isinstance(prov.get(name), str) and prov[name]:
+                out[name] = prov[name]
+        return out
+    return {"default": True}
+
+
 def part_values(part: Part, rails: dict | None = None, library=None) -> dict[str, dict]:
     """Every resolved value of a part, flat, keyed by its dotted path.
 
@@ -133,7 +165,7 @@ def part_values(part: Part, rails: dict | None = None, library=None) -> dict[str
             for i, sub in enumerate(obj):
                 walk(sub, f"{key}[{i}]", vdd)
         elif isinstance(obj, (bool, str, int, float)):
-            out[key] = {"value": obj}
+            out[key] = {"value": obj, **_setting_provenance(part, key, library)}
 
     for name in ("supply", "pins", "timing", "sides", "bridge", "line"):
         walk(getattr(part, name), name, rails.get(None))
