@@ -635,14 +635,16 @@ def test_a_margin_beyond_the_shown_range_on_both_sides_did_not_move():
     assert not compare(_result({}, status="fail", checks=[low]),
                        _result({}, status="fail", checks=[dict(low, margin=-12.0)])
                        ).margin_changes
-    # one side inside the range reads as a real change and is listed
-    (m,) = compare(old, _result({}, checks=[dict(chk, value=2.5e-6, margin=9.0)])
+    # one side near its limit reads as a real change and is listed
+    (m,) = compare(old, _result({}, checks=[dict(chk, value=375e-9, margin=0.5)])
                    ).margin_changes
-    assert "margin > +999 % → +900 %" in m.format(), m.format()
-    # derived: 9.99 rounds to +999 %, shown as a number; 12.0 is beyond: listed
-    (m,) = compare(_result({}, checks=[dict(chk, margin=9.99)]),
-                   _result({}, checks=[dict(chk, margin=12.0)])).margin_changes
-    assert "margin +999 % → > +999 %" in m.format(), m.format()
+    assert "margin > +999 % → +50 %" in m.format(), m.format()
+    # both far above the limit (+100 % or more), one of them beyond the range: not news
+    # ("> +999 % → +900 %", "+999 % → > +999 %")
+    assert not compare(old, _result({}, checks=[dict(chk, value=2.5e-6, margin=9.0)])
+                       ).margin_changes
+    assert not compare(_result({}, checks=[dict(chk, margin=9.99)]),
+                       _result({}, checks=[dict(chk, margin=12.0)])).margin_changes
 
 
 def test_parse_change_threshold():

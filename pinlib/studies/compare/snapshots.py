@@ -259,6 +259,22 @@ def _parts_section(design) -> dict[str, dict]:
     return parts
 
 
+def _chosen(design) -> list[str]:
+    """The places whose resistor pinlib chose (an ``"auto"`` pull-up of a segment, an
+    ``"auto"`` series resistor of a line), as the result's figures are placed: ``bus``
+    and ``bus/segment`` for a pull-up (a bus of one segment gives its figures at the
+    bus), ``bus/signal`` for a line."""
+    out = []
+    for bus in design.buses:
+        segments = [s for s in bus.segments if s.pullup == "auto"]
+        if segments and len(bus.segments) == 1:
+            out.append(bus.id)
+        out += [f"{bus.id}/{s.id}" for s in segments]
+        out += [f"{bus.id}/{sig}" for sig, ln in bus.lines.items()
+                if ln.series_resistor == "auto"]
+    return sorted(set(out))
+
+
 def snapshot(design, result) -> dict:
     """A result that explains itself: the result JSON, the resolved parts, the library.
 
@@ -274,7 +290,8 @@ def snapshot(design, result) -> dict:
     dict
         The result JSON (``format = "pinlib.result/1"``) plus ``parts`` (per device
         reference: part id, library file, provenance, every resolved value), ``library``
-        (folders, overrides) and ``created`` (UTC, ISO 8601).
+        (folders, overrides), ``chosen`` (the places whose resistor pinlib chose,
+        :func:`_chosen`) and ``created`` (UTC, ISO 8601).
     """
     out = dict(result.to_json() if hasattr(result, "to_json") else result)
     if out.get("format") != RESULT_FORMAT:
@@ -288,6 +305,7 @@ def snapshot(design, result) -> dict:
     if design.path:
         out["design_file"] = Path(design.path).name
     out["parts"] = _parts_section(design)
+    out["chosen"] = _chosen(design)
     out["library"] = {
         "builtin": str(Path(BUILTIN_DIR).resolve()),
         "folders": [_shown_path(f, design_dir) for f in lib.folders],
