@@ -2818,6 +2818,34 @@ def _(env):
     return env.cli("parts", "used-by", "eeprom-i2c")
 
 
+# the resistors are pinlib's own choice from E24 for the board below (not a number from
+# outside: the case meets the message, test_swapdiff checks the rule)
+@case("AUTO_RESISTOR_CHANGED", M.AUTO_RESISTOR_CHANGED.format(
+    where="b", what="pull-up", new="1.2 kΩ", old="2 kΩ"))
+def _(env):
+    # an "auto" pull-up chosen anew once the target's pins load the bus more (the part's
+    # 200 pF is invented test data)
+    env.write("team/heavy.toml", """\
+        format = "pinlib.part/1"
+        id = "heavy"
+        title = "Heavily loaded target (invented)"
+        category = "memory"
+        extends = "eeprom-i2c"
+        provenance = { basis = "estimate", source = "invented" }
+
+        [pins.sda]
+        c_in = { value = "200 pF", basis = "estimate", source = "invented" }
+
+        [pins.scl]
+        c_in = { value = "200 pF", basis = "estimate", source = "invented" }
+        """)
+    head = HEAD.replace('title = "messages"\n', 'title = "messages"\nlibrary = ["team"]\n')
+    path = env.write("design.toml", head + I2C_BUS.replace(
+        'supply = "3.3 V"', 'supply = "3.3 V"\npullup = "auto"'))
+    main(["swap", str(path), "U2=heavy", "--json"])
+    return " ".join(json.loads(env.capsys.readouterr().out)["changes"]["notes"])
+
+
 @case("SWAP_NEEDS_SUBSTITUTION")
 def _(env):
     return env.cli("swap", str(env.write("design.toml", HEAD + I2C_BUS)))

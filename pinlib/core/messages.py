@@ -435,6 +435,9 @@ NO_TEAM_FOLDERS = "none (PINLIB_LIBRARY, the design's library line and --library
 DESIGN_NOT_LOADED = "{path}: not checked: {message}"
 SCHEMA_KIND = "no schema of this kind"
 ONE_DESIGN_ONLY = "this option takes one design at a time"
+#: A change list's line for a resistor pinlib chose ("auto") that it chose anew.
+AUTO_RESISTOR_CHANGED = ("{where}: the automatic {what} is now {new}, not {old}: pinlib "
+                         "chose another resistor to fit, a change to the bill of materials")
 SWAP_NEEDS_SUBSTITUTION = "no substitution given"
 SWAP_PART_FORM = "a substitution over designs is OLD=NEW (two part ids)"
 SWAP_FORMS_MIXED = "REF=PART and --part OLD=NEW cannot be mixed"

@@ -425,8 +425,44 @@ def warns_only(check: Check) -> bool:
 def warns_beyond(c: Check) -> str | None:
     """:func:`why_warns` of a check that warns beyond its limit (a negative margin, or a
     yes/no check's warning); None for any other check."""
-    beyond = c.margin is None or (isinstance(c.margin, (int, float)) and c.margin < 0)
-    return why_warns(c) if c.status == "warn" and beyond else None
+    return soft_beyond(c.status, c.margin, c.details)
+
+
+def soft_beyond(status, margin, details) -> str | None:
+    """:func:`warns_beyond` of a check given by its status, margin and details (a
+    check's JSON form, as a snapshot holds it)."""
+    beyond = margin is None or (isinstance(margin, (int, float)) and margin < 0)
+    if status != "warn" or not beyond:
+        return None
+    details = details if isinstance(details, dict) else {}
+    return "rule" if details.get("rule_of_thumb") else details.get("limit_basis")
+
+
+#: Beside a limit that a check beyond it only warns against: no datasheet stands behind
+#: it (:func:`soften`, by its basis), or it is a rule of thumb (:func:`rule_of_thumb`);
+#: :func:`warns_beyond` says which.
+SOFT_TAGS = {"generic": " (a class's typical value)", "estimate": " (an estimate)",
+             "rule": " (a rule of thumb)"}
+
+
+def _modes_text(modes) -> str:
+    modes = sorted(int(m) for m in modes)
+    return f"mode{'' if len(modes) == 1 else 's'} {', '.join(map(str, modes))}"
+
+
+#: A yes/no check whose details say what was held against what: its value and limit
+#: as text, by check id (the SPI mode against the modes the part states).
+_COMPARED = {
+    "spi-mode": lambda d: (f"mode {int(d['mode'])}", _modes_text(d["modes"]))
+    if "mode" in d and "modes" in d else None,
+}
+
+
+def compared_cells(check_id, details) -> tuple[str, str] | None:
+    """What a yes/no check held against what, as (value, limit) text (``"mode 1"``,
+    ``"modes 0, 3"``), where its details say it; else None."""
+    make = _COMPARED.get(check_id)
+    return make(details) if make is not None and isinstance(details, dict) else None
 
 
 def status_counts(checks) -> dict[str, int]:

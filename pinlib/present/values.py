@@ -7,13 +7,15 @@ from __future__ import annotations
 from collections.abc import Mapping
 
 from pinlib.core import messages as M
-from pinlib.core.labels import figure_label, plural_s, shown_figures
+from pinlib.core.labels import figure_label, shown_figures
 from pinlib.core.quantity import format_value
 from pinlib.model.result import (
+    SOFT_TAGS,
     BusResult,
     Check,
     DesignResult,
     Figure,
+    compared_cells,
     figure_text,
     status_counts,
     warns_beyond,
@@ -101,27 +103,6 @@ def _text(name: str, f: Figure) -> str:
     return figure_text(f)
 
 
-def _modes(modes) -> str:
-    modes = sorted(int(m) for m in modes)
-    return f"mode{plural_s(len(modes))} {', '.join(map(str, modes))}"
-
-
-#: A yes/no check whose details say what was held against what: its value and limit
-#: cells, by check id (the SPI mode against the modes the part states).
-_COMPARED = {
-    "spi-mode": lambda d: (f"mode {int(d['mode'])}", _modes(d["modes"]))
-    if "mode" in d and "modes" in d else None,
-}
-
-
-#: Beside a limit that a check beyond it only warns against: no datasheet stands behind
-#: it (:func:`pinlib.model.result.soften`, by its basis), or it is a rule of thumb
-#: (:func:`pinlib.model.result.rule_of_thumb`); :func:`pinlib.model.result.warns_beyond`
-#: says which.
-SOFT_TAGS = {"generic": " (a class's typical value)", "estimate": " (an estimate)",
-             "rule": " (a rule of thumb)"}
-
-
 def soft_tag(c: Check) -> str:
     """Beside the limit of a check beyond it that only warns, why (:data:`SOFT_TAGS`);
     else nothing."""
@@ -138,9 +119,7 @@ def check_cells(c: Check, *, answer: bool = False, why: bool = False) -> tuple[s
     With ``why`` (the widgets' and the reviews' tables, which print no message beside
     them), a limit a check beyond it only warns against says why (:data:`SOFT_TAGS`)."""
     if isinstance(c.value, bool):
-        details = c.details if isinstance(c.details, dict) else {}
-        make = _COMPARED.get(c.id)
-        shown = make(details) if make is not None else None
+        shown = compared_cells(c.id, c.details)
         if shown is not None:
             return shown
         return ("yes" if c.value else "no") if answer else "", ""

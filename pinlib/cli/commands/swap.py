@@ -187,7 +187,7 @@ def _table(rows) -> list[str]:
             path = heads[len(cells)] = row.path
         change = {"added": "new", "removed": "gone", "changed": "differs"}.get(row.kind, "")
         if row.kind in ("moved", "same"):
-            change = format_change(row.change, row.old).strip("()")
+            change = format_change(row.change, row.old, row.new, row.unit).strip("()")
         if row.kind == "same" and row.change == 0:
             change = ""
         cells.append(["*" if row.moved else "", figure_label(row.name),

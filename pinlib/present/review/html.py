@@ -338,7 +338,7 @@ class _Html:
                    "</section>")
             return
         from pinlib.core.labels import figure_label
-        from pinlib.studies.compare import format_change, format_figure
+        from pinlib.studies.compare import format_change
         from pinlib.studies.compare.changes import shown_changes
         from pinlib.studies.compare.figures import figure_value_text
 
@@ -366,8 +366,7 @@ class _Html:
                 before = _badge(c.old) if c.old in _MARK else "(absent)"
                 after = _badge(c.new) if c.new in _MARK else "(absent)"
                 subj = (c.subject or "") + (f" (was {c.old_subject})" if c.old_subject else "")
-                value = (f"{format_figure(c.old_value, c.unit)} → "
-                         f"{format_figure(c.new_value, c.unit)}")
+                value = c.value_text()  # as the text says it; a yes/no check's comparison
                 limit_s = c.limit_text()  # before → after where it moved, as the text says
                 self.w(f'<tr class="r-{c.new or "fail"}"><td>{_e(c.path)}</td>'
                        f'<td title="{_e(c.check)}">{_e(check_label(c.check))}</td>'
@@ -387,7 +386,8 @@ class _Html:
                 self.w(f"<tr><td>{_e(f.path)}</td><td>{_e(figure_label(f.name))}</td>"
                        f'<td class="num">{_e(figure_value_text(f.name, f.old, f.unit))}</td>'
                        f'<td class="num">{_e(figure_value_text(f.name, f.new, f.unit))}</td>'
-                       f'<td class="num">{_e(format_change(f.change, f.old) or f.kind)}</td></tr>')
+                       f'<td class="num">'
+                       f'{_e(format_change(f.change, f.old, f.new, f.unit) or f.kind)}</td></tr>')
             self.w("</tbody></table></div>")
         if cl.part_changes:
             self.w("<h3>Part values behind the change</h3>")

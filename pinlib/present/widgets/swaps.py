@@ -416,7 +416,8 @@ class SwapExplorer(_Panel):
                         f'</td><td style="{CELL}">{e(figure_label(c.name))}</td>'
                         f'<td style="{NUM}">{e(format_figure(c.old, c.unit))} → '
                         f'{e(format_figure(c.new, c.unit))}</td>'
-                        f'<td style="{NUM}">{e(format_change(c.change, c.old))}</td></tr>')
+                        f'<td style="{NUM}">'
+                        f'{e(format_change(c.change, c.old, c.new, c.unit))}</td></tr>')
         return rows
 
     # ---------------------------------------------------------------- charts

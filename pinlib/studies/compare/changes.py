@@ -14,8 +14,15 @@ from pinlib.core.labels import check_label, figure_label, plural_s, shown_figure
 from pinlib.core.quantity import Threshold, format_si, format_threshold
 from pinlib.core.valueclass import value_class
 from pinlib.library.sources import NEEDS_SOURCE
-from pinlib.model.result import beyond_shown, signed_margin_text
+from pinlib.model.result import (
+    SOFT_TAGS,
+    beyond_shown,
+    compared_cells,
+    signed_margin_text,
+    soft_beyond,
+)
 from pinlib.studies.compare.figures import (
+    CHOSEN_PARTS,
     DEFAULT_THRESHOLD,
     _checks,
     _is_number,
@@ -63,6 +70,13 @@ class StatusChange:
     #: gate overdrive in V, an SPI timing slack in s); None where it is relative
     old_margin_unit: str | None = None
     new_margin_unit: str | None = None
+    #: why each side only warns beyond its limit (:func:`pinlib.model.result.soft_beyond`:
+    #: ``"generic"``, ``"estimate"``, ``"rule"``), None where it does not
+    old_soft: str | None = None
+    new_soft: str | None = None
+    #: each side's details (what a yes/no check compared), not in the JSON
+    old_details: dict | None = None
+    new_details: dict | None = None
 
     def format(self) -> str:
         where = f"{self.path} {check_label(str(self.check))}" + (
@@ -71,26 +85,41 @@ class StatusChange:
             where += f" (was {self.old_subject})"
         old = self.old or "(absent)"
         new = self.new or "(absent)"
-        text = f"{where}: {old} {_ARROW} {new} ({self.values_text()})"
+        values = self.values_text()
+        text = f"{where}: {old} {_ARROW} {new}" + (f" ({values})" if values else "")
         if self.source:
             text += f"; source: {self.source}"
         return text
 
+    @property
+    def yes_no(self) -> bool:
+        """A yes/no check: its value is no number to show."""
+        return isinstance(self.old_value, bool) or isinstance(self.new_value, bool)
+
     def values_text(self) -> str:
         """The check's value (before → after, or the one side present) and its limit, as
-        :meth:`format` shows them in parentheses: ``117 mV → 420 mV, limit 940 mV``."""
-        vals = []
-        if self.old is not None and self.new is not None:
-            old, new = (format_figure(v, self.unit) for v in (self.old_value, self.new_value))
-            vals.append(new if old == new else f"{old} {_ARROW} {new}")  # same: the limit moved
-        elif self.new is not None:
-            vals.append(format_figure(self.new_value, self.unit))
-        else:
-            vals.append(format_figure(self.old_value, self.unit))
+        :meth:`format` shows them in parentheses: ``117 mV → 420 mV, limit 940 mV``; a
+        limit that a side warns beyond only (a class's typical value, an estimate, a rule
+        of thumb) with that side's tag, as ``pinlib check`` puts it.  A yes/no check
+        shows what it compared (:func:`_yes_no_text`), or nothing."""
+        if self.yes_no:
+            return _yes_no_text(self)
+        vals = [self.value_text()]
         limit = self.limit_text()
         if limit:
             vals.append(f"limit {limit}")
         return ", ".join(vals)
+
+    def value_text(self) -> str:
+        """The check's value as text: before → after (once where it stayed: the limit
+        moved), or the one side present; a yes/no check's what it compared, or ""."""
+        if self.yes_no:
+            return _yes_no_text(self)
+        if self.old is not None and self.new is not None:
+            old, new = (format_figure(v, self.unit) for v in (self.old_value, self.new_value))
+            return new if old == new else f"{old} {_ARROW} {new}"  # same: the limit moved
+        return format_figure(self.new_value if self.new is not None else self.old_value,
+                             self.unit)
 
     def limit_text(self) -> str:
         """The check's limit as text: before → after where it moved (a part's rating),
@@ -98,10 +127,17 @@ class StatusChange:
         limit = self.new_limit if self.new is not None else self.old_limit
         if limit is None or isinstance(limit, bool):
             return ""
-        if self.old is not None and self.new is not None and self.old_limit != self.new_limit:
-            return (f"{format_figure(self.old_limit, self.unit)} {_ARROW} "
-                    f"{format_figure(self.new_limit, self.unit)}")
-        return format_figure(limit, self.unit)
+        old_tag, new_tag = (SOFT_TAGS.get(x or "", "") for x in (self.old_soft, self.new_soft))
+        if self.old is not None and self.new is not None:
+            # a soft limit made firm (an estimate re-recorded from a datasheet, the check
+            # failing now) shows both sides; otherwise the one tag present is the limit's
+            firmed = bool(old_tag) and not new_tag and self.new == "fail"
+            if self.old_limit != self.new_limit or firmed or (old_tag and new_tag
+                                                              and old_tag != new_tag):
+                return (f"{format_figure(self.old_limit, self.unit)}{old_tag} {_ARROW} "
+                        f"{format_figure(self.new_limit, self.unit)}{new_tag}")
+            return format_figure(limit, self.unit) + (new_tag or old_tag)
+        return format_figure(limit, self.unit) + (new_tag if self.new is not None else old_tag)
 
     def to_json(self) -> dict:
         out = {"path": self.path, "check": self.check, "subject": self.subject,
@@ -115,7 +151,43 @@ class StatusChange:
         for key in ("old_margin_unit", "new_margin_unit"):
             if getattr(self, key) is not None:
                 out[key] = getattr(self, key)
+        for key in ("old_soft", "new_soft"):  # only where a side warns beyond its limit
+            if getattr(self, key) is not None:
+                out[key] = getattr(self, key)
         return out
+
+
+def _yes_no_text(c: StatusChange) -> str:
+    """What a yes/no check compared, before → after where it differs: an SPI mode
+    against the modes the part states (``mode 0; U7's modes 0, 3 → mode 3``), a
+    switched rail's clamp current into a device whose pins are not power-off tolerant
+    (``clamp current SDA 1.2 mA, SCL 1.2 mA``); "" for another (its message says it),
+    never the bare yes and no."""
+    sides = [(d if s is not None else None) for s, d in ((c.old, c.old_details),
+                                                        (c.new, c.new_details))]
+    cells = [compared_cells(c.check, d) if d is not None else None for d in sides]
+    if any(cells):
+        def both(i: int) -> str:
+            got = [x[i] for x in cells if x]
+            if len(got) == 1 or got[0] == got[1]:
+                return got[0]
+            a, b = got[0].split(" ", 1), got[1].split(" ", 1)
+            if len(b) == 2 and a[0].rstrip("s") == b[0].rstrip("s"):  # "modes 0, 3 → 3"
+                return f"{got[0]} {_ARROW} {b[1]}"
+            return f"{got[0]} {_ARROW} {got[1]}"
+
+        whose = f"{c.subject}'s " if c.subject else "the part's "
+        return f"{both(0)}; {whose}{both(1)}"
+    if c.check == "power-off":
+        shown = [", ".join(f"{sig} {format_si(i, 'A')}" for sig, i in
+                           (d or {}).get("clamp_current", {}).items()
+                           if _is_number(i)) for d in sides]
+        got = [x for x in shown if x]
+        if not got:
+            return ""
+        text = got[0] if len(got) == 1 or got[0] == got[1] else f"{got[0]} {_ARROW} {got[1]}"
+        return f"clamp current {text}"
+    return ""
 
 
 @value_class
@@ -131,9 +203,10 @@ class MarginChange:
         where = f"{c.path} {check_label(str(c.check))}" + (f" {c.subject}" if c.subject else "")
         if c.old_subject:
             where += f" (was {c.old_subject})"
+        values = c.values_text()
         return (f"{where}: margin {signed_margin_text(c.old_margin, c.old_margin_unit)} "
-                f"{_ARROW} {signed_margin_text(c.new_margin, c.new_margin_unit)} "
-                f"({c.values_text()})")
+                f"{_ARROW} {signed_margin_text(c.new_margin, c.new_margin_unit)}"
+                + (f" ({values})" if values else ""))
 
     def to_json(self) -> dict:
         """A status change's keys, with the one ``status`` in place of ``old``/``new``."""
@@ -146,6 +219,12 @@ class MarginChange:
         return out
 
 
+#: A relative margin at least this far above its limit (+100 %: a value at most half
+#: its maximum, at least twice its minimum) is far from it: a move between two such
+#: margins is not listed (:func:`_margin_moved`).
+FAR_MARGIN = 1.0
+
+
 def _margin_moved(o: dict, n: dict, threshold: float) -> bool:
     """Both margins numbers and apart by more than ``threshold`` in points (a margin of
     +75 % that fell to +0 %) and as a fraction of the old margin (a margin of +621 %
@@ -154,7 +233,9 @@ def _margin_moved(o: dict, n: dict, threshold: float) -> bool:
     more than ``threshold`` of itself, as a figure; one that changed its kind (a
     requirement of 0 that a part now records) moved.  Two relative margins both beyond
     the range the text shows, on the same side (``> +999 %`` both, :func:`beyond_shown`),
-    did not move for a reader: not listed (the figures beside them say by how much)."""
+    or both at least :data:`FAR_MARGIN` above the limit (``> +999 % → +977 %``, ``+189 %
+    → +201 %``: far from the limit either way), did not move for a reader: not listed
+    (the figures beside them say by how much)."""
     a, b = o.get("margin"), n.get("margin")
     if not (_is_number(a) and _is_number(b) and math.isfinite(a) and math.isfinite(b)):
         return False
@@ -164,7 +245,7 @@ def _margin_moved(o: dict, n: dict, threshold: float) -> bool:
     if unit is not None:
         return abs(b - a) > threshold * abs(a)
     side = beyond_shown(a)
-    if side and side == beyond_shown(b):
+    if (side and side == beyond_shown(b)) or min(a, b) >= FAR_MARGIN:
         return False
     return abs(b - a) > threshold and abs(b - a) > threshold * abs(a)
 
@@ -183,8 +264,9 @@ class FigureChange:
 
     def format(self) -> str:
         """``path: Label old → new (change)``, the figure under its readable label."""
-        change = format_change(self.change, self.old) if self.kind in ("moved", "same") else {
-            "added": "(new)", "removed": "(gone)"}.get(self.kind, "")
+        change = (format_change(self.change, self.old, self.new, self.unit)
+                  if self.kind in ("moved", "same")
+                  else {"added": "(new)", "removed": "(gone)"}.get(self.kind, ""))
         old, new = (figure_value_text(self.name, v, self.unit) for v in (self.old, self.new))
         return f"{self.path}: {figure_label(self.name)} {old} {_ARROW} {new} {change}".rstrip()
 
@@ -241,7 +323,9 @@ def _show_value(entry: dict | None) -> str:
             shown += f" ({format_si(entry['value'], 'V')} at {format_si(entry['vdd'], 'V')})"
         return shown
     v = entry.get("value")
-    if isinstance(v, (bool, str)) or v is None:
+    if isinstance(v, bool):  # a setting, as `pinlib parts show` prints it
+        return "true" if v else "false"
+    if isinstance(v, str) or v is None:
         return format_figure(v, "")
     if isinstance(v, list):  # a list the part states (its SPI modes), as the file writes it
         return "[" + ", ".join(str(x) for x in v) + "]"
@@ -258,8 +342,44 @@ def _same_value(a: dict | None, b: dict | None) -> bool:
                                  abs_tol=1e-15))
     va, vb = a.get("value"), b.get("value")
     if _is_number(va) and _is_number(vb):
-        return math.isclose(va, vb, rel_tol=1e-12, abs_tol=0.0)
-    return va == vb and a.get("unit") == b.get("unit")
+        same = math.isclose(va, vb, rel_tol=1e-12, abs_tol=0.0)
+    else:
+        same = va == vb and a.get("unit") == b.get("unit")
+    return same and (_basis(a) == _basis(b) or not (_stated(a) and _stated(b)))
+
+
+def _stated(entry: dict) -> bool:
+    """A value a part states with its provenance (a number, a level, a list of SPI
+    modes), whose basis counts in a comparison; not a setting (``function``, ``drive``,
+    ``off_tolerant``), whose basis is only its file's."""
+    return "text" in entry or "scale" in entry or isinstance(entry.get("value"), list)
+
+
+def _basis(entry: dict | None) -> str | None:
+    return (entry or {}).get("basis") or None
+
+
+def _provenance_bits(shown: dict, part_id: str | None, *, with_basis: bool = True
+                     ) -> list[str]:
+    """What a value line says of where one side's value comes from: its source (with
+    its basis in brackets unless ``with_basis`` is false, where the line shows the basis
+    moving), else its basis, and the part file that set it where that is not
+    ``part_id``; a setting no file states, that it is the part format's default."""
+    bits = []
+    basis = _basis(shown)
+    tag = f" [{basis}]" if basis and with_basis else ""
+    source = str(shown.get("source") or "").strip()  # a blank one names nothing
+    if source:
+        bits.append(f"source: {source}{tag}")
+    elif basis in NEEDS_SOURCE:
+        bits.append(f"basis: {basis}, no source named" if with_basis else "no source named")
+    elif tag:
+        bits.append(f"basis: {basis}")
+    if shown.get("default"):
+        bits.append("not stated: the part format's default")
+    if shown.get("origin") and shown["origin"] != part_id:
+        bits.append(f"set in {shown['origin']}")
+    return bits
 
 
 @value_class
@@ -284,23 +404,36 @@ class ValueChange:
         its :attr:`timing_pin`), else None."""
         return _pin_of(self.key) or self.timing_pin
 
-    def format(self, ref: str, part_id: str | None = None) -> str:
+    @property
+    def basis_moved(self) -> bool:
+        """True where both sides state the value and its basis differs (a class's typical
+        value that a datasheet's replaced, the same number or not)."""
+        return (self.old is not None and self.new is not None and _stated(self.old)
+                and _stated(self.new) and _basis(self.old) != _basis(self.new))
+
+    def format(self, ref: str, part_id: str | None = None,
+               old_part: str | None = None) -> str:
         """``U4 SDA c_in 8 pF → 80 pF, source: … [estimate]``; the part file that set
-        the value is named when it is not ``part_id`` itself (an inherited value)."""
-        text = f"{ref} {self.label} {_show_value(self.old)} {_ARROW} {_show_value(self.new)}"
-        shown = self.new if self.new is not None else self.old
-        bits = []
-        basis = f" [{shown['basis']}]" if shown.get("basis") else ""
-        source = str(shown.get("source") or "").strip()  # a blank one names nothing
-        if source:
-            bits.append(f"source: {source}{basis}")
-        elif shown.get("basis") in NEEDS_SOURCE:
-            bits.append(f"basis: {shown['basis']}, no source named")
-        elif basis:
-            bits.append(f"basis: {shown['basis']}")
-        if shown.get("origin") and shown["origin"] != part_id:
-            bits.append(f"set in {shown['origin']}")
-        return text + (", " + ", ".join(bits) if bits else "")
+        the value is named when it is not ``part_id`` itself (an inherited value).  A
+        basis that changed shows both, after the value (``8 pF [generic → datasheet]``,
+        the number shown once where it stayed); a value the new part does not state
+        names whose the source shown is (``old_part``'s, the part before)."""
+        old, new = _show_value(self.old), _show_value(self.new)
+        text = f"{ref} {self.label} {new if old == new else f'{old} {_ARROW} {new}'}"
+        moved = self.basis_moved
+        if moved:
+            text += (f" [{_basis(self.old) or 'no basis'} {_ARROW} "
+                     f"{_basis(self.new) or 'no basis'}]")
+        gone = self.new is None and self.old is not None
+        shown = self.old if gone else self.new
+        owner = (old_part or part_id) if gone else part_id
+        bits = _provenance_bits(shown, owner, with_basis=not moved)
+        if not gone:
+            return text + (", " + ", ".join(bits) if bits else "")
+        whose = (f"not stated by {part_id}" if part_id and old_part and part_id != old_part
+                 else "no longer stated")
+        before = f"{old_part}'s " if old_part and old_part != part_id else "before: "
+        return text + f", {whose}" + (f"; {before}" + ", ".join(bits) if bits else "")
 
     def to_json(self) -> dict:
         return {"key": self.key, "label": self.label, "old": self.old, "new": self.new,
@@ -331,8 +464,8 @@ class PartChange:
             head += f"; on {', '.join(self.buses)}"
         if self.old_part is None or self.new_part is None:
             return [head]  # a device placed or removed: its values are not changes
-        shown_part = self.new_part if self.new_part is not None else self.old_part
-        return [head] + ["  " + v.format(self.ref, shown_part) for v in self.connected
+        return [head] + ["  " + v.format(self.ref, self.new_part, self.old_part)
+                         for v in self.connected
                          ] + ["  " + line for line in self.unconnected_lines()]
 
     @property
@@ -486,6 +619,18 @@ def _paired_checks(old_c: dict, new_c: dict) -> list[tuple[dict | None, dict | N
     return pairs
 
 
+def _soft(check: dict | None) -> str | None:
+    """Why a snapshot's check warns beyond its limit only, else None."""
+    if not check:
+        return None
+    return soft_beyond(check.get("status"), check.get("margin"), check.get("details"))
+
+
+def _details(check: dict | None) -> dict | None:
+    details = (check or {}).get("details")
+    return details if isinstance(details, dict) else None
+
+
 def _pin_of(key: str) -> str | None:
     """The pin a value's dotted key is under (``pins.cipo.r_out`` -> ``cipo``), else None."""
     head, _, rest = key.partition(".")
@@ -602,16 +747,23 @@ def compare(old_snapshot: dict, new_snapshot: dict, *, threshold: float = DEFAUL
             (o or {}).get("margin"), (n or {}).get("margin"),
             ref.get("source", ""), ref.get("message", ""),
             old_subject if o and n and old_subject != ref.get("subject") else None,
-            (o or {}).get("margin_unit"), (n or {}).get("margin_unit"))
+            (o or {}).get("margin_unit"), (n or {}).get("margin_unit"),
+            _soft(o), _soft(n), _details(o), _details(n))
         if os_ == ns_:
             cl.margin_changes.append(MarginChange(change))
         else:
             cl.status_changes.append(change)
 
+    chosen = _chosen_of(old_snapshot) & _chosen_of(new_snapshot)
     for row in figure_rows(old_snapshot, new_snapshot, threshold=threshold):
         if row.moved and top_id(row.path) not in absent and top_id(row.path) not in fresh:
             cl.figure_changes.append(FigureChange(row.path, row.name, row.unit, row.old,
                                                   row.new, row.change, row.kind))
+            if row.path in chosen and row.name in CHOSEN_PARTS and _is_number(row.old) \
+                    and _is_number(row.new):
+                cl.notes.append(M.AUTO_RESISTOR_CHANGED.format(
+                    where=row.path, what=_CHOSEN_WHAT[row.name],
+                    new=format_si(row.new, row.unit), old=format_si(row.old, row.unit)))
 
     old_p, new_p = old_snapshot.get("parts"), new_snapshot.get("parts")
     if old_p is None or new_p is None:
@@ -643,6 +795,17 @@ def compare(old_snapshot: dict, new_snapshot: dict, *, threshold: float = DEFAUL
                             f"{_words(sorted(ol.get('overrides') or {}))} {_ARROW} "
                             f"{_words(sorted(nl.get('overrides') or {}))}")
     return cl
+
+
+#: What each resistor pinlib chooses is called in a change list's note.
+_CHOSEN_WHAT = {"pullup_resistor": "pull-up", "series_resistor": "series resistor"}
+
+
+def _chosen_of(snap: dict) -> set[str]:
+    """The places whose resistor pinlib chose, as a snapshot records them (none in one
+    saved before pinlib recorded them, or where the entry is not a list of names)."""
+    got = snap.get("chosen")
+    return {x for x in got if isinstance(x, str)} if isinstance(got, list) else set()
 
 
 def _words(items) -> str:

@@ -99,7 +99,7 @@ def figure_value_text(name: str, value, unit: str) -> str:
     return format_figure(value, unit)
 
 
-def format_change(rel: float | None, old=None) -> str:
+def format_change(rel: float | None, old=None, new=None, unit: str | None = None) -> str:
     """A relative change as text, never in exponent form: ``(+12.5 %)``, ``(-540 %)``
     (three significant digits), under 1 % one (``(-0.8 %)``, ``(+0.01 %)``) up to
     ±999 %; a positive figure that grew further by its factor, ``(×187)``; other changes
@@ -109,9 +109,16 @@ def format_change(rel: float | None, old=None) -> str:
     ``(from zero)``; empty for none.
 
     ``old`` is the figure's old value (the factor is ``new / old`` only where it is
-    positive)."""
+    positive).  A figure that changed sign (a timing slack that became negative: a
+    percent of the old slack says nothing) shows its change in its own ``unit`` where
+    ``new`` and ``unit`` are given: ``(-32.2 ns)``."""
     if rel is None:
         return ""
+    if unit is not None and _is_number(old) and _is_number(new) and old * new < 0:
+        from pinlib.core.quantity import format_si
+
+        diff = new - old
+        return f"({'+' if diff > 0 else '-'}{format_si(abs(diff), unit)})"
     if math.isinf(rel):
         return "(from zero)"
     pct = rel * 100

@@ -89,6 +89,38 @@ def _sourced_entry(v: Sourced, vdd: float | None, library) -> dict:
 
 
 
+def _setting_provenance(part: Part, key: str, library) -> dict:
+    """Where a setting (``function``, ``drive``, ``off_tolerant``) comes from: the part
+    file of the part's chain, child first, that states it (``origin``) with that file's
+    provenance basis and source (``"provenance": "part"``); ``"default": True`` where
+    no file states it (the part format's default); nothing without a library."""
+    files = getattr(library, "files", None)
+    if not files or part.id not in files:
+        return {}
+    loc = [int(k) if k.isdigit() else k
+           for k in key.replace("[", ".").replace("]", "").split(".")]
+    for pid in library.chain(part.id):
+        raw = files[pid].raw
+        for k in loc:
+            if isinstance(raw, dict) and isinstance(k, str) and k in raw:
+                raw = raw[k]
+            elif isinstance(raw, list) and isinstance(k, int) and k < len(raw):
+                raw = raw[k]
+            else:
+                raw = None
+                break
+        if raw is None:
+            continue
+        prov = files[pid].raw.get("provenance")
+        prov = prov if isinstance(prov, dict) else {}
+        out: dict[str, Any] = {"origin": pid, "provenance": "part"}
+        for name in ("basis", "source"):
+            if isinstance(prov.get(name), str) and prov[name]:
+                out[name] = prov[name]
+        return out
+    return {"default": True}
+
+
 def part_values(part: Part, rails: dict | None = None, library=None) -> dict[str, dict]:
     """Every resolved value of a part, flat, keyed by its dotted path.
 
@@ -134,7 +166,7 @@ def part_values(part: Part, rails: dict | None = None, library=None) -> dict[str
             for i, sub in enumerate(obj):
                 walk(sub, f"{key}[{i}]", vdd)
         elif isinstance(obj, (bool, str, int, float)):
-            out[key] = {"value": obj}
+            out[key] = {"value": obj, **_setting_provenance(part, key, library)}
 
     for name in ("supply", "pins", "timing", "sides", "bridge", "line"):
         walk(getattr(part, name), name, rails.get(None))
@@ -228,6 +260,22 @@ def _parts_section(design) -> dict[str, dict]:
     return parts
 
 
+def _chosen(design) -> list[str]:
+    """The places whose resistor pinlib chose (an ``"auto"`` pull-up of a segment, an
+    ``"auto"`` series resistor of a line), as the result's figures are placed: ``bus``
+    and ``bus/segment`` for a pull-up (a bus of one segment gives its figures at the
+    bus), ``bus/signal`` for a line."""
+    out = []
+    for bus in design.buses:
+        segments = [s for s in bus.segments if s.pullup == "auto"]
+        if segments and len(bus.segments) == 1:
+            out.append(bus.id)
+        out += [f"{bus.id}/{s.id}" for s in segments]
+        out += [f"{bus.id}/{sig}" for sig, ln in bus.lines.items()
+                if ln.series_resistor == "auto"]
+    return sorted(set(out))
+
+
 def snapshot(design, result) -> dict:
     """A result that explains itself: the result JSON, the resolved parts, the library.
 
@@ -243,7 +291,8 @@ def snapshot(design, result) -> dict:
     dict
         The result JSON (``format = "pinlib.result/1"``) plus ``parts`` (per device
         reference: part id, library file, provenance, every resolved value), ``library``
-        (folders, overrides) and ``created`` (UTC, ISO 8601).
+        (folders, overrides), ``chosen`` (the places whose resistor pinlib chose,
+        :func:`_chosen`) and ``created`` (UTC, ISO 8601).
     """
     out = dict(result.to_json() if hasattr(result, "to_json") else result)
     if out.get("format") != RESULT_FORMAT:
@@ -257,6 +306,7 @@ def snapshot(design, result) -> dict:
     if design.path:
         out["design_file"] = Path(design.path).name
     out["parts"] = _parts_section(design)
+    out["chosen"] = _chosen(design)
     out["library"] = {
         "builtin": str(Path(BUILTIN_DIR).resolve()),
         "folders": [_shown_path(f, design_dir) for f in lib.folders],
