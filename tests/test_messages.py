@@ -3989,6 +3989,10 @@ def _(env):
     # tolerance of at most 1 - 0.2969 = 70.3 %
     err = _board_c(env, "90 %", 'capacitance = "1 pF/cm", delay = "60 ps/cm"')
     assert "at most 70.3 %" in err.message
+    # named at the bus's own key, the line that writes it (not the bus's header line)
+    assert err.field.endswith("].capacitance_tolerance") and "met evaluating" not in err.message
+    written = (env.tmp / "design.toml").read_text("utf-8").splitlines()[err.line - 1]
+    assert written.lstrip().startswith("capacitance_tolerance")
     return err.message
 
 

@@ -111,8 +111,13 @@ def _located(err: PinlibError, bus: Bus, design: Design) -> PinlibError:
                          line=pf.line(loc) if pf else None, field=dotted(loc),
                          value=err.value, expected=err.expected,
                          hint=f"{err.hint}; {hint}" if err.hint else hint)
+    own = bus.loc + (err.field,) if err.field else None
     if err.field and err.field.startswith(("bus", "board")):  # a place in the design
         field, hint = err.field, err.hint
+    elif own is not None and own in index:  # a key of the bus's own table, as written
+        return type(err)(err.problem, file=str(design.path) if design.path else None,
+                         line=index[own], field=dotted(own), value=err.value,
+                         expected=err.expected, hint=err.hint)
     else:  # a value computed from the bus: named in the hint
         field = dotted(bus.loc) or None
         hint = M.MET_EVALUATING_BUS.format(bus=bus.id, field=err.field or "?")
