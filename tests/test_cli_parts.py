@@ -511,7 +511,16 @@ def test_new_fits_its_lines_to_80_columns_and_the_next_command_still_pastes(
     assert " \\\n    " in nxt
     assert nxt.replace(" \\\n    ", " ") == (
         f'next: pinlib parts record {new_id} sda.c_in "VALUE" --source "..." '
-        "--library other")
+        "--library team --library other")
+    # the command as printed runs: the class lives in team, the new part in other (it
+    # named only "other", and the record failed: "extends a part that is not in the
+    # library")
+    import shlex
+
+    argv = shlex.split(nxt.replace(" \\\n    ", " ").removeprefix("next: pinlib "))
+    argv[argv.index("VALUE")] = "8 pF"
+    code, _, err = run(capsys, *argv)
+    assert code == 0, err
     # in a pipe (no COLUMNS, not a terminal) each stays one line
     monkeypatch.delenv("COLUMNS")
     code, out, _ = run(capsys, "parts", "new", new_id + "-b", "--from", "base", "--into",

@@ -571,10 +571,14 @@ def _run_new(args) -> int:
 
         print(fitted(not_a_library_yet_note(str(folder), _rel(folder)), sys.stderr),
               file=sys.stderr)
+    # the folders this command was told to read (the class may live in one), then the
+    # new part's own where the library does not read it yet
+    given = [f"--library {f}" for f in args.library]
+    if folder.resolve() not in known:
+        given.append(f"--library {folder}")
     print(fitted_command("next:", ["pinlib", "parts", "record", args.id,
                                    field_example(lib.get(args.from_class)),
-                                   '"VALUE"', '--source "..."']
-                         + ([f"--library {folder}"] if folder.resolve() not in known else [])))
+                                   '"VALUE"', '--source "..."'] + given))
     return 0
 
 
