@@ -906,6 +906,20 @@ def test_swap_over_designs_counts_in_words():
     assert _counted(16, "margin") == "16 margins"
 
 
+def test_swap_over_designs_gives_every_design_the_same_three_counts(tmp_path, capsys,
+                                                                    monkeypatch):
+    # one design's line said "0 checks changed status, 1 margin moved, 0 figures moved",
+    # the next "0 checks changed status, 0 figures moved": the margins' count went
+    # missing where it was 0
+    monkeypatch.setenv("COLUMNS", "200")
+    a, b = _board(tmp_path, "a.toml"), _board(tmp_path, "b.toml")
+    main(["swap", "--part", "eeprom-i2c=rtc-i2c", str(a), str(b)])
+    out = capsys.readouterr().out
+    rows = [ln for ln in out.splitlines() if "changed status" in ln]
+    assert rows and all(re.search(r"\d+ checks? changed status, \d+ margins? moved, "
+                                  r"\d+ figures? moved", ln) for ln in rows), out
+
+
 def test_detail_over_several_designs_is_refused_naming_the_command_for_each(tmp_path, capsys):
     # "pinlib check 'boards/*.toml' --detail" printed the one line per design and left
     # --detail unsaid, where --corners over several designs says it takes one at a time

@@ -151,10 +151,10 @@ def _swap_lines(s, width: int) -> list[str]:
             out += [f"    {r['ref']}: {reason}" for reason in r["reasons"]]
         return out
     c = s.changes
+    # the same three counts on every design's line, 0 included, so the lines compare
     moved = (f"{_counted(len(c.status_changes), 'check')} changed status, "
-             + (f"{_counted(len(c.margin_changes), 'margin')} moved, " if c.margin_changes
-                else "")
-             + f"{_counted(len(c.figure_changes), 'figure')} moved")
+             f"{_counted(len(c.margin_changes), 'margin')} moved, "
+             f"{_counted(len(c.figure_changes), 'figure')} moved")
     written = "; written" if s.written else ""
     if s.write_error is not None:
         written = "; " + M.SWAP_LINE_NOT_WRITTEN
