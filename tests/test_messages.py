@@ -3403,6 +3403,68 @@ lines.reset = { length = "3 cm", geometry = "g", pullup = "1 GΩ", pullup_tolera
     return _fails(lambda e: _check(e.design(text)), env)
 
 
+LOW_SMBUS = """
+[[bus]]
+id = "smbl"
+protocol = "smbus"
+mode = "100k"
+supply = "1.6 V"
+supply_tolerance = "10 %"
+pullup = "1 kΩ"
+extra_capacitance = "20 pF"
+devices = [
+  { ref = "U1", part = "mcu-1v8", role = "controller", supply = "1.8 V" },
+  { ref = "U2", part = "battery-gauge-smbus", supply = "3.3 V" },
+]
+"""
+
+
+def _low_smbus_text(env) -> str:
+    # an SMBus rail of 1.6 V ±10 % (invented): at 1.44 V the line never reaches the
+    # SMBus upper rise point, 1.50 V (SMBus 3.1 table 2): the JSON of the result
+    import json
+    return json.dumps(_check(env.design(LOW_SMBUS)).to_json(), ensure_ascii=False)
+
+
+@case("RISE_ABOVE_RAIL", M.RISE_ABOVE_RAIL.format(line="SDA", level="1.5 V", vdd="1.44 V"))
+def _(env):
+    return _low_smbus_text(env)
+
+
+@case("RISE_ABOVE_RAIL_FIX", M.RISE_ABOVE_RAIL_FIX.format(level="1.5 V"))
+def _(env):
+    return _low_smbus_text(env)
+
+
+@case("RISE_NONE_RAIL", M.RISE_NONE_RAIL.format(line="SDA", level="1.5 V", vdd="1.44 V"))
+def _(env):
+    return _low_smbus_text(env)
+
+
+@case("RISE_FACTOR_NONE", M.RISE_FACTOR_NONE.format(level="1.5 V", vdd="1.44 V"))
+def _(env):
+    return _low_smbus_text(env)
+
+
+@case("RP_MAX_NO_RISE", M.RP_MAX_NO_RISE.format(level="1.5 V"))
+def _(env):
+    return _low_smbus_text(env)
+
+
+@case("SETUP_NO_RISE", M.SETUP_NO_RISE.format(level="1.5 V", limit="250 ns"))
+def _(env):
+    return _low_smbus_text(env)
+
+
+@case("FIGURE_EDGE_NEVER_ENDS")
+def _(env):
+    import json
+
+    from pinlib.studies.candidates import rank_candidates
+    return json.dumps(rank_candidates(env.design(LOW_SMBUS), "U2").to_json(),
+                      ensure_ascii=False)
+
+
 @case("NO_DRIVER_ON_LINE")
 def _(env):
     # both on the line through input pins: none drives it

@@ -710,7 +710,10 @@ def _batch_summaries(bus: Bus, dev: Device, design: Design, ref: str, parts: lis
         figs = {}
         for name, unit in FIGURES["open-drain"]:
             arr = sb.figures.get(name)
-            figs[name] = (None if arr is None else float(arr[j]), unit)
+            x = None if arr is None else float(arr[j])
+            # an edge that never ends (a line that never reaches its level) has no number
+            figs[name] = (x, unit) if x is None or math.isfinite(x) else FigureCell(
+                None, unit, M.FIGURE_EDGE_NEVER_ENDS)
         if cols and ok[j].any():
             m = None if yes_no[idx[j]] else float(mg[j, idx[j]])
             w = dict(where[idx[j]])
