@@ -5,7 +5,6 @@ from __future__ import annotations
 
 import base64
 import re
-import textwrap
 
 from pinlib import __version__
 from pinlib.core import messages as M
