@@ -2949,6 +2949,37 @@ def _(env):
     return _fails(lambda e: scl_frequency(0.0, 0.0, 0.0, 0.0), env)
 
 
+def _levels_err(env, levels: str) -> str:
+    path = env.write("design.toml", HEAD + _BENCH_BUS)
+    with pytest.raises(SystemExit):
+        main(["measured", str(path), "--bus", "b", "--rise", "1us", "--probe", "1pF",
+              "--levels", levels])
+    return " ".join(env.capsys.readouterr().err.split())
+
+
+@case("LEVELS_FORMS")
+def _(env):
+    return _levels_err(env, "x,y")
+
+
+@case("LEVELS_VOLTS_BOTH", M.LEVELS_VOLTS_BOTH.format(got="0.65,1.5V"))
+def _(env):
+    return _levels_err(env, "0.65,1.5V")
+
+
+@case("LEVELS_VOLTS_ORDER", M.LEVELS_VOLTS_ORDER.format(got="1.5V,0.65V"))
+def _(env):
+    return _levels_err(env, "1.5V,0.65V")
+
+
+@case("LEVEL_NOT_BELOW_RAIL")
+def _(env):
+    from pinlib.engines.bench import compare_rise
+
+    return _fails(lambda e: compare_rise(e.design(_BENCH_BUS), "b", 1e-6, 1e-12,
+                                         levels_volts=(0.65, 3.3)), env)
+
+
 @case("LEVELS_OUT_OF_RANGE")
 def _(env):
     from pinlib.physics.pullup import capacitance_from_rise

@@ -765,6 +765,13 @@ BENCH_ALSO_PUSH_PULL = ("{who} also drive{s} {signal} push-pull: the reading is 
                         "through the pull-up only with {them} idle (high impedance)")
 # the command's measuring levels
 LEVELS_FORM = "measuring levels are two numbers, low,high"
+LEVELS_FORMS = ("expected percent of the rail (30,70), fractions (0.3,0.7) or volts "
+                "with their unit (0.65V,1.5V)")
+LEVELS_VOLTS_BOTH = ("measuring levels in volts are two voltages, each with its unit "
+                     "(0.65V,1.5V) (got {got!r})")
+LEVELS_VOLTS_ORDER = ("measuring levels in volts run from the lower to the higher, at or "
+                      "above 0 V (got {got!r})")
+LEVEL_NOT_BELOW_RAIL = "a measuring level at or above the rail is never reached"
 
 # ---------------------------------------------------------------- studies
 # pinlib/studies/compare/
