@@ -561,3 +561,32 @@ def test_the_panel_keeps_a_level_under_one_percent(design):
     got = compare_rise(load_design(design), "i2c0", 250e-9, 10e-12, levels=(0.003, 0.7))
     html = comparison_html(got)
     assert "(0.3–70\u00a0%, as measured)" in html, html
+
+
+def test_levels_in_volts_as_smbus_measures(design, capsys):
+    # published: SMBus 3.1 table 2 reads tR between VIL,max − 0.15 V and VIH,min + 0.15 V,
+    # 0.65 V and 1.50 V (docs/references.md [C2]); on the 3.3 V rail (invented test
+    # design) they are 0.65/3.3 and 1.5/3.3 of it, the same reading as in fractions
+    d = load_design(design)
+    got = compare_rise(d, "i2c0", 100e-9, 10e-12, levels_volts=(0.65, 1.5))
+    same = compare_rise(d, "i2c0", 100e-9, 10e-12, levels=(0.65 / 3.3, 1.5 / 3.3))
+    assert got.cb == pytest.approx(same.cb, rel=1e-12)
+    # derived from Cb = t / (Rp ln((VDD − 0.65)/(VDD − 1.5))) − C_probe
+    assert got.cb == pytest.approx(100e-9 / (2200 * math.log(2.65 / 1.8)) - 10e-12,
+                                   rel=1e-9)
+    assert got.levels_volts == (0.65, 1.5) and got.rail == 3.3
+    assert got.to_json()["levels_volts"] == [0.65, 1.5]
+    # the command takes them with their unit, mV too, and says what they are of the rail
+    for levels in ("0.65V,1.5V", "650mV,1.5 V"):
+        main(["measured", str(design), "--bus", "i2c0", "--rise", "100ns", "--probe",
+              "10pF", "--levels", levels])
+        out = " ".join(capsys.readouterr().out.split())
+        assert "(650 mV to 1.5 V: 19.7 % to 45.5 % of the nominal 3.3 V rail)" in out, out
+    # one with a unit beside one without, or a level at the rail, is refused, saying how
+    with pytest.raises(SystemExit):
+        main(["measured", str(design), "--bus", "i2c0", "--rise", "1us", "--probe", "1pF",
+              "--levels", "0.65,1.5V"])
+    assert "each with its unit (0.65V,1.5V)" in " ".join(capsys.readouterr().err.split())
+    assert main(["measured", str(design), "--bus", "i2c0", "--rise", "1us", "--probe",
+                 "1pF", "--levels", "0.65V,3.3V"]) == 2
+    assert "never reached" in capsys.readouterr().err

@@ -3013,6 +3013,37 @@ def _(env):
     return _fails(lambda e: scl_frequency(0.0, 0.0, 0.0, 0.0), env)
 
 
+def _levels_err(env, levels: str) -> str:
+    path = env.write("design.toml", HEAD + _BENCH_BUS)
+    with pytest.raises(SystemExit):
+        main(["measured", str(path), "--bus", "b", "--rise", "1us", "--probe", "1pF",
+              "--levels", levels])
+    return " ".join(env.capsys.readouterr().err.split())
+
+
+@case("LEVELS_FORMS")
+def _(env):
+    return _levels_err(env, "x,y")
+
+
+@case("LEVELS_VOLTS_BOTH", M.LEVELS_VOLTS_BOTH.format(got="0.65,1.5V"))
+def _(env):
+    return _levels_err(env, "0.65,1.5V")
+
+
+@case("LEVELS_VOLTS_ORDER", M.LEVELS_VOLTS_ORDER.format(got="1.5V,0.65V"))
+def _(env):
+    return _levels_err(env, "1.5V,0.65V")
+
+
+@case("LEVEL_NOT_BELOW_RAIL")
+def _(env):
+    from pinlib.engines.bench import compare_rise
+
+    return _fails(lambda e: compare_rise(e.design(_BENCH_BUS), "b", 1e-6, 1e-12,
+                                         levels_volts=(0.65, 3.3)), env)
+
+
 @case("LEVELS_OUT_OF_RANGE")
 def _(env):
     from pinlib.physics.pullup import capacitance_from_rise
@@ -3465,6 +3496,68 @@ devices = [
 lines.reset = { length = "3 cm", geometry = "g", pullup = "1 GΩ", pullup_tolerance = "0 %" }
 """
     return _fails(lambda e: _check(e.design(text)), env)
+
+
+LOW_SMBUS = """
+[[bus]]
+id = "smbl"
+protocol = "smbus"
+mode = "100k"
+supply = "1.6 V"
+supply_tolerance = "10 %"
+pullup = "1 kΩ"
+extra_capacitance = "20 pF"
+devices = [
+  { ref = "U1", part = "mcu-1v8", role = "controller", supply = "1.8 V" },
+  { ref = "U2", part = "battery-gauge-smbus", supply = "3.3 V" },
+]
+"""
+
+
+def _low_smbus_text(env) -> str:
+    # an SMBus rail of 1.6 V ±10 % (invented): at 1.44 V the line never reaches the
+    # SMBus upper rise point, 1.50 V (SMBus 3.1 table 2): the JSON of the result
+    import json
+    return json.dumps(_check(env.design(LOW_SMBUS)).to_json(), ensure_ascii=False)
+
+
+@case("RISE_ABOVE_RAIL", M.RISE_ABOVE_RAIL.format(line="SDA", level="1.5 V", vdd="1.44 V"))
+def _(env):
+    return _low_smbus_text(env)
+
+
+@case("RISE_ABOVE_RAIL_FIX", M.RISE_ABOVE_RAIL_FIX.format(level="1.5 V"))
+def _(env):
+    return _low_smbus_text(env)
+
+
+@case("RISE_NONE_RAIL", M.RISE_NONE_RAIL.format(line="SDA", level="1.5 V", vdd="1.44 V"))
+def _(env):
+    return _low_smbus_text(env)
+
+
+@case("RISE_FACTOR_NONE", M.RISE_FACTOR_NONE.format(level="1.5 V", vdd="1.44 V"))
+def _(env):
+    return _low_smbus_text(env)
+
+
+@case("RP_MAX_NO_RISE", M.RP_MAX_NO_RISE.format(level="1.5 V"))
+def _(env):
+    return _low_smbus_text(env)
+
+
+@case("SETUP_NO_RISE", M.SETUP_NO_RISE.format(level="1.5 V", limit="250 ns"))
+def _(env):
+    return _low_smbus_text(env)
+
+
+@case("FIGURE_EDGE_NEVER_ENDS")
+def _(env):
+    import json
+
+    from pinlib.studies.candidates import rank_candidates
+    return json.dumps(rank_candidates(env.design(LOW_SMBUS), "U2").to_json(),
+                      ensure_ascii=False)
 
 
 @case("NO_DRIVER_ON_LINE")

@@ -563,6 +563,20 @@ FIT_TWO_DRIVERS = ("the points fit two drivers within {tolerance}: r_out {r_out}
 NOT_OPEN_DRAIN_BUS = "not an open-drain bus"
 NOT_PUSH_PULL_BUS = "the push-pull engine evaluates spi and gpio buses"
 NO_DRIVER_ON_LINE = "no device drives this line"
+#: An SMBus line on a rail whose minimum does not exceed the rise's upper measuring
+#: point (VIH,min + 0.15 V): it never gets there (pinlib/engines/opendrain/wording.py).
+RISE_ABOVE_RAIL = ("{line} never rises to {level}, where its rise time ends: the "
+                   "rail's minimum {vdd} does not reach it")
+RISE_ABOVE_RAIL_FIX = ("a rail whose minimum stays above {level} (a higher supply or "
+                       "a tighter tolerance)")
+#: Figures a rise that never completes leaves without a value (wording_segment.py).
+RISE_NONE_RAIL = "none: {line} never rises to {level}, above the rail's minimum {vdd}"
+RISE_FACTOR_NONE = "none: the rail's minimum {vdd} does not exceed {level}"
+RP_MAX_NO_RISE = "no upper bound from the rise: it never reaches {level} (see Rise time)"
+SETUP_NO_RISE = ("SDA data setup: none, SDA never rises to {level}, where its rise time "
+                 "ends (see Rise time), against tSU;DAT {limit}")
+#: A candidate's edge figure that is infinite (pinlib/studies/candidates.py).
+FIGURE_EDGE_NEVER_ENDS = "the line never reaches the level its edge ends at (see its check)"
 LINE_HELD_LOW = ("{signal}'s pull-up {rp} (as evaluated, within its tolerance) "
                  "against the pins' leakage {leak} would drop {drop}, more than "
                  "the {rail} rail: the line never rises")
@@ -762,6 +776,13 @@ BENCH_ALSO_PUSH_PULL = ("{who} also drive{s} {signal} push-pull: the reading is 
                         "through the pull-up only with {them} idle (high impedance)")
 # the command's measuring levels
 LEVELS_FORM = "measuring levels are two numbers, low,high"
+LEVELS_FORMS = ("expected percent of the rail (30,70), fractions (0.3,0.7) or volts "
+                "with their unit (0.65V,1.5V)")
+LEVELS_VOLTS_BOTH = ("measuring levels in volts are two voltages, each with its unit "
+                     "(0.65V,1.5V) (got {got!r})")
+LEVELS_VOLTS_ORDER = ("measuring levels in volts run from the lower to the higher, at or "
+                      "above 0 V (got {got!r})")
+LEVEL_NOT_BELOW_RAIL = "a measuring level at or above the rail is never reached"
 
 # ---------------------------------------------------------------- studies
 # pinlib/studies/compare/

@@ -146,6 +146,11 @@ class BenchComparison:
     one_segment : bool
         The line's bus is an open-drain bus of one segment: the text names no segment
         (the segment's id is the bus's own), the JSON still gives it.
+    levels_volts : tuple of float or None
+        The measuring levels as given in volts (``--levels 0.65V,1.5V``), None where
+        they were given as shares of the rail. [V]
+    rail : float or None
+        The nominal rail the levels in volts were made fractions of. [V]
     """
 
     bus: str
@@ -168,6 +173,8 @@ class BenchComparison:
     rise_alone: float | None = None
     warnings: list = field(default_factory=list)
     one_segment: bool = False
+    levels_volts: tuple | None = None
+    rail: float | None = None
 
     def place(self) -> str:
         """Where the reading was taken: ``bus reset, line reset``, ``bus i2c0, SDA`` (a
@@ -192,6 +199,8 @@ class BenchComparison:
             "contributions": dict(self.contributions), "verdict": self.verdict,
             "revisit": list(self.revisit), "notes": list(self.notes),
             "warnings": [w.to_json() for w in self.warnings],
+            "levels_volts": None if self.levels_volts is None else list(self.levels_volts),
+            "rail": self.rail,
             "reading_tolerance": READING_TOLERANCE,
             "source": "RC rise t = Rp (Cb + C_probe) ln((1 - lo)/(1 - hi)), UM10204 rev. 6 §7.1",
         }
@@ -200,8 +209,13 @@ class BenchComparison:
         """The comparison as text, each line wrapped to ``width`` (None: no limit)."""
         lo, hi = self.levels
         f = format_si
+        between = f"{_pct(lo)} to {_pct(hi)}"
+        if self.levels_volts is not None:
+            v_lo, v_hi = self.levels_volts
+            between = (f"{f(v_lo, 'V')} to {f(v_hi, 'V')}: {between} of the nominal "
+                       f"{f(self.rail, 'V')} rail")
         lines = [
-            f"{self.place()}: rise {f(self.rise, 's')} ({_pct(lo)} to {_pct(hi)}) with a "
+            f"{self.place()}: rise {f(self.rise, 's')} ({between}) with a "
             f"{_cap(self.c_probe)} probe, Rp {f(self.rp, 'Ω')} (±{_pct(self.rp_tolerance)})",
             f"  measured Cb  {_cap(self.cb)}  (range {_cap(self.cb_low)} to "
             f"{_cap(self.cb_high)}: pull-up tolerance and ±{_pct(READING_TOLERANCE)} "
@@ -223,7 +237,8 @@ class BenchComparison:
 
 def compare_rise(design: Design, bus_id: str, rise: float, c_probe: float, *,
                  levels: tuple[float, float] = (0.3, 0.7), signal: str | None = None,
-                 segment: str | None = None) -> BenchComparison:
+                 segment: str | None = None,
+                 levels_volts: tuple[float, float] | None = None) -> BenchComparison:
     """Compare a rise time measured on an open-drain line with the modelled Cb.
 
     Parameters
@@ -245,6 +260,9 @@ def compare_rise(design: Design, bus_id: str, rise: float, c_probe: float, *,
     segment : str, optional
         The segment of a bus with a bridging part (its first by default); a GPIO bus
         has none.
+    levels_volts : tuple of float, optional
+        The measuring levels in volts instead (SMBus reads its rise between 0.65 V and
+        1.50 V): made fractions of the line's nominal rail, in place of ``levels``. [V]
 
     Raises
     ------
@@ -266,6 +284,14 @@ def compare_rise(design: Design, bus_id: str, rise: float, c_probe: float, *,
         raise _not_open_drain(bus)
     rp, tol = got.rp, got.tolerance
     lo, hi = levels
+    if levels_volts is not None:
+        if not levels_volts[1] < got.rail:
+            raise InputError(M.LEVEL_NOT_BELOW_RAIL, field="--levels",
+                             value=format_si(levels_volts[1], "V"),
+                             expected=f"levels below the line's nominal rail "
+                                      f"{format_si(got.rail, 'V')} (an RC rise never "
+                                      "reaches it)")
+        lo, hi = levels_volts[0] / got.rail, levels_volts[1] / got.rail
     _plausible_reading(rise, c_probe, lo, hi)
     cb, alone = _from_reading(rise, rp, c_probe, lo, hi)
     # a larger pull-up charges slower: the same reading then means less capacitance
@@ -289,7 +315,10 @@ def compare_rise(design: Design, bus_id: str, rise: float, c_probe: float, *,
                            model, parts, verdict, revisit, protocol=bus.protocol,
                            notes=list(got.notes), rise_alone=float(alone),
                            warnings=_implausible(float(cb), model, rp),
-                           one_segment=is_open_drain(bus.protocol) and len(bus.segments) == 1)
+                           one_segment=is_open_drain(bus.protocol) and len(bus.segments) == 1,
+                           levels_volts=None if levels_volts is None else (
+                               float(levels_volts[0]), float(levels_volts[1])),
+                           rail=None if levels_volts is None else float(got.rail))
 
 
 def _implausible(cb: float, model: float, rp: float) -> list[Check]:
@@ -391,7 +420,8 @@ def measurable_lines(design: Design) -> tuple[list[MeasurableLine], list[tuple]]
 @value_class(frozen=True)
 class _Line:
     """What an engine states of the line measured: where it is, its pull-up (nominal)
-    and that pull-up's tolerance, its modelled Cb and Cb's contributions."""
+    and that pull-up's tolerance, its modelled Cb and Cb's contributions, and the
+    nominal rail the pull-up pulls to. [V]"""
 
     segment: str | None
     signal: str
@@ -400,6 +430,7 @@ class _Line:
     cb_model: float
     contributions: dict
     notes: tuple = ()
+    rail: float = 0.0
 
 
 def _open_drain_line(bus: Bus, design: Design, signal: str, segment: str | None) -> _Line:
@@ -416,7 +447,8 @@ def _open_drain_line(bus: Bus, design: Design, signal: str, segment: str | None)
     line = seg_in.lines[signal]
     return _Line(seg_in.segment.id, signal, float(seg_in.r_eff(signal)),
                  float(seg_in.segment.pullup_tolerance), float(line.cb),
-                 {k: float(v) for k, v in line.cb_parts.items()})
+                 {k: float(v) for k, v in line.cb_parts.items()},
+                 rail=float(seg_in.segment.supply))
 
 
 def _gpio_open_drain(bus: Bus, design: Design, signal: str | None, segment: str | None,
@@ -486,7 +518,8 @@ def _gpio_line(bus: Bus, design: Design, signal: str | None, segment: str | None
         notes = (M.BENCH_ALSO_PUSH_PULL.format(
             who=_who(pp), s="s" if len(pp) == 1 else "", signal=signal,
             them="it" if len(pp) == 1 else "them"),)
-    return _Line(None, signal, float(rp), float(tol), total, parts, notes)
+    rail = open_drain_pullup(li.line, li.loads, od[0])[1]
+    return _Line(None, signal, float(rp), float(tol), total, parts, notes, rail=float(rail))
 
 
 def _not_open_drain(bus: Bus) -> InputError:

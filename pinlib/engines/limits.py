@@ -12,6 +12,8 @@ budget the I2C-bus value of the same speed is taken, and the result says so.
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from pinlib.core import messages as M
@@ -99,10 +101,19 @@ class OpenDrainLimits:
     # ------------------------------------------------------------------ edges
 
     def rise_factor(self, vdd):
-        """Rise time in units of RpCb between this bus's measuring points. [1]"""
+        """Rise time in units of RpCb between this bus's measuring points: ``inf`` on an
+        SMBus rail at or below the upper point (VIH,min + 0.15 V), which a line pulled up
+        to it never reaches (its rise-time check fails without a value). [1]"""
         if self._smbus is None:
             return np.full(np.shape(vdd), RISE_30_70)[()] if np.ndim(vdd) else RISE_30_70
-        return smbus_std.rise_rc_factor(self._smbus, vdd)
+        hi = smbus_std.rise_points(self._smbus)[1]
+        if np.ndim(vdd) == 0:
+            v = float(vdd)
+            return float(smbus_std.rise_rc_factor(self._smbus, v)) if v > hi else math.inf
+        v = np.asarray(vdd, dtype=float)
+        reach = v > hi
+        k = smbus_std.rise_rc_factor(self._smbus, np.where(reach, v, hi + 1.0))
+        return np.where(reach, k, math.inf)
 
     def measuring_levels(self, vdd):
         """(v_lo, v_hi): the levels rise times are measured between (fall times:

@@ -148,11 +148,15 @@ _RANK = {"pass": 0, "warn": 1, "fail": 2, "error": 3}
 
 def _ranks(check_id: str, dev, subject: str | None = None) -> bool:
     """Whether a check's margin counts for a candidate's worst margin (``subject``: the
-    device the check names, for :data:`OWN_CHECKS`)."""
-    if dev.is_bridge:
-        return True
+    device the check names, for :data:`OWN_CHECKS`).  At a bridging part's position as
+    at any other, another device's own rating does not (the same for every candidate:
+    a 5 V segment's gauge against its rail ranked every translator), nor the clock
+    against its mode; the bridge's own checks (its gate drive, its offset sides'
+    facing) do, as they move with the candidate."""
     if check_id in OWN_CHECKS:
         return _names(subject, dev.ref)
+    if dev.is_bridge:
+        return check_id != "scl-frequency"
     return check_id not in FIXED_CHECKS
 
 
@@ -710,7 +714,10 @@ def _batch_summaries(bus: Bus, dev: Device, design: Design, ref: str, parts: lis
         figs = {}
         for name, unit in FIGURES["open-drain"]:
             arr = sb.figures.get(name)
-            figs[name] = (None if arr is None else float(arr[j]), unit)
+            x = None if arr is None else float(arr[j])
+            # an edge that never ends (a line that never reaches its level) has no number
+            figs[name] = (x, unit) if x is None or math.isfinite(x) else FigureCell(
+                None, unit, M.FIGURE_EDGE_NEVER_ENDS)
         if cols and ok[j].any():
             m = None if yes_no[idx[j]] else float(mg[j, idx[j]])
             w = dict(where[idx[j]])

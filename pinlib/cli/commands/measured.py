@@ -20,6 +20,8 @@ examples:
       --probe 10pF --json
   pinlib measured board.toml --bus reset --line reset --rise 600ns \\
       --probe 10pF
+  pinlib measured board.toml --bus smb0 --rise 300ns --probe 10pF \\
+      --levels 0.65V,1.5V
 
 The rise of an open-drain line (I2C, SMBus, or a GPIO line an open-drain pin drives) is
 an RC charge through the pull-up, so a rise read between two levels with a probe of
@@ -35,15 +37,36 @@ exit status: 0 the measurement agrees with the model, 1 it does not, 2 bad input
 """
 
 
+class LevelsInVolts(tuple):
+    """Measuring levels given in volts (``"0.65V,1.5V"``, as SMBus measures its rise):
+    (lo, hi) [V], made fractions of the line's rail by :func:`compare_rise`."""
+
+
 def levels_type(text: str) -> tuple[float, float]:
     """``"30,70"`` or ``"0.3,0.7"`` -> (0.3, 0.7): percent when a number is above 1 or
-    a ``%`` is written; a fraction beside a percentage (``"0.3,70"``) is refused."""
+    a ``%`` is written; a fraction beside a percentage (``"0.3,70"``) is refused.
+    ``"0.65V,1.5V"`` (each with its unit, ``V`` or ``mV``) -> :class:`LevelsInVolts`."""
     raw = [b.strip() for b in str(text).split(",")]
+    volts = [b.lower().endswith("v") for b in raw]
+    if len(raw) == 2 and any(volts):
+        from pinlib.core.errors import PinlibError
+        from pinlib.core.quantity import parse
+
+        if not all(volts):
+            raise argparse.ArgumentTypeError(M.LEVELS_VOLTS_BOTH.format(got=text))
+        try:
+            lo, hi = (float(parse(b, "V", field="--levels")) for b in raw)
+        except PinlibError:
+            raise argparse.ArgumentTypeError(M.LEVELS_VOLTS_BOTH.format(got=text)) from None
+        if not 0.0 <= lo < hi:
+            raise argparse.ArgumentTypeError(M.LEVELS_VOLTS_ORDER.format(got=text))
+        return LevelsInVolts((lo, hi))
     bits = [b.rstrip("%") for b in raw]
     try:
         lo, hi = (float(b) for b in bits)
     except ValueError:
-        raise argparse.ArgumentTypeError(M.LEVELS_FORM + f" (got {text!r})") from None
+        raise argparse.ArgumentTypeError(
+            M.LEVELS_FORM + f" (got {text!r}); " + M.LEVELS_FORMS) from None
     percent = any(b.endswith("%") for b in raw)
     if not percent and max(lo, hi) > 1 and 0 < min(lo, hi) < 1:
         raise argparse.ArgumentTypeError(
@@ -82,7 +105,7 @@ def add_parser(sub) -> None:
                    help="the probe's capacitance, e.g. 10pF")
     p.add_argument("--levels", type=levels_type, default=(0.3, 0.7), metavar="LO,HI",
                    help="the levels the rise was read between, in %% of the rail "
-                        "(default 30,70)")
+                        "(default 30,70), or in volts (0.65V,1.5V: SMBus's points)")
     p.add_argument("--library", metavar="DIR", action="append", default=[],
                    help="a team library folder (repeatable; takes precedence over the design's)")
     p.add_argument("--json", action="store_true", help="print the comparison as JSON")
@@ -98,8 +121,10 @@ def run(args) -> int:
     probe = parse(args.probe, "F", field="--probe")
     design = load_design(args.design, library_folders=args.library)
     _check_open_drain_line(args, design)
-    got = compare_rise(design, args.bus, rise, probe, levels=args.levels, signal=args.line,
-                       segment=args.segment)
+    levels = {"levels_volts": tuple(args.levels)} if isinstance(
+        args.levels, LevelsInVolts) else {"levels": args.levels}
+    got = compare_rise(design, args.bus, rise, probe, signal=args.line,
+                       segment=args.segment, **levels)
     if args.json:
         from pinlib.present.terminal import write_json
 

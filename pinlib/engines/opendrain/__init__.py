@@ -96,7 +96,9 @@ def evaluate_bus(bus: Bus, design: Design) -> BusResult:
     Raises
     ------
     DesignError
-        When the bus cannot be evaluated (an SMBus rail below its rise-time point).
+        When the bus cannot be evaluated (not an open-drain bus).  An SMBus rail whose
+        minimum does not exceed the rise's upper point is no error: its rise-time check
+        fails.
     """
     lim, seg_ins = collect(bus, design)
     ctx, batch = run(bus, design, WorstCase(1), collected=(lim, seg_ins), name_segments=True)

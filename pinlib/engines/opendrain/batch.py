@@ -147,7 +147,11 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
         soft = [np.logical_and(low, ln.soft_min), False]
         rows.append(ge(rp_lo, ln.rp_min_firm))
     out.pick("pullup-window", up, rows, warn, "Ω", soft=soft).basis = (m_lo, m_hi)
-    tr = phys.rise_time(rp_hi, ln.cb, ln.rise_factor)
+    # the rise factor is infinite on an SMBus rail at or below the rise's upper point
+    # (limits.rise_factor): the line never gets there, as below
+    k = ln.rise_factor
+    k_ok = np.isfinite(k)
+    tr = np.where(k_ok, phys.rise_time(rp_hi, ln.cb, np.where(k_ok, k, 1.0)), np.inf)
     f["rise_time"] = tr
     f["rise_time_10_90"] = phys.rise_time(rp_hi, ln.cb, RISE_10_90)
     # a line its pins' leakage holds below the rise's upper level never completes the
@@ -222,7 +226,7 @@ def _in_domain(ctx, ln: _Line, v, rp_lo, rp_hi, far) -> bool:
     v_lo, v_hi = ctx.lim.measuring_levels(v)
     f_lo, f_start = ctx.lim.fall_levels(v)
     at_least_0 = [v, ln.cb, ln.leakage]
-    above_0 = [rp_lo, rp_hi, ln.rise_factor, v_hi - v_lo, f_start - f_lo]
+    above_0 = [rp_lo, rp_hi, v_hi - v_lo, f_start - f_lo]  # rise factor: +inf allowed
     for d in ln.drivers:
         at_least_0 += [d.r_sink, d.r_sink_low, d.r_series]
         above_0 += [d.v_ol, d.v_ol_low, d.i_ol]

@@ -593,12 +593,6 @@ def collect(bus: Bus, design: Design) -> tuple[OpenDrainLimits, list[SegmentInpu
                       seg.supply * (1 + seg.supply_tolerance)])
         seg_in = SegmentInputs(seg, i, v, seg.pullup_tolerance, seg.supply_tolerance, {},
                                math.nan, False)
-        if lim.rise_definition == "smbus":
-            lo, hi = lim.measuring_levels(v[0])
-            if v[0] <= float(hi):
-                raise DesignError(M.SUPPLY_BELOW_SMBUS_POINTS,
-                                  field=f"bus.{bus.id}.supply", value=format_si(v[0], "V"),
-                                  expected=f"a rail above {float(hi):.2f} V at its minimum")
         # SDA and SCL run side by side: one trace model serves both
         c_traces = sum(_trace_capacitance(sec, seg_in) for sec in seg.sections) * (
             1.0 + seg.length_tolerance) * (1.0 + seg.capacitance_tolerance)

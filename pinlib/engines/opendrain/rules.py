@@ -91,13 +91,19 @@ def rp_max_of(lim: OpenDrainLimits, rise_factor, cb):
 
 def _rp_for_rise(tr, rise_factor, cb, without_cb: float):
     """The pull-up whose rise through ``cb`` takes ``tr``, UM10204 eq. 1 (``tr /
-    (factor·Cb)``), and ``without_cb`` where Cb is 0; a float for scalars, else an
+    (factor·Cb)``), and ``without_cb`` where Cb is 0 or the factor is infinite (an SMBus
+    rail at or below the rise's upper point: no pull-up completes the rise, the rise-time
+    check fails on its own and bounds nothing here); a float for scalars, else an
     array. [Ω]"""
     if np.ndim(tr) == 0 and np.ndim(cb) == 0 and np.ndim(rise_factor) == 0:
-        return float(rc.rp_max(tr, cb, rise_factor)) if cb > 0 else without_cb
+        if cb > 0 and math.isfinite(rise_factor):
+            return float(rc.rp_max(tr, cb, rise_factor))
+        return without_cb
     cb_arr = np.asarray(cb, dtype=float)
-    ok = cb_arr > 0
-    return np.where(ok, rc.rp_max(tr, np.where(ok, cb_arr, 1.0), rise_factor), without_cb)
+    k = np.asarray(rise_factor, dtype=float)
+    ok = (cb_arr > 0) & np.isfinite(k)
+    return np.where(ok, rc.rp_max(tr, np.where(ok, cb_arr, 1.0), np.where(ok, k, 1.0)),
+                    without_cb)
 
 
 def rp_fast_of(lim: OpenDrainLimits, v, rise_factor, cb):

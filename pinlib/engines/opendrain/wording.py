@@ -159,7 +159,9 @@ def line(w: Words, ln: LineInputs) -> None:
     bc = w.take("rise-time")
     basis = (f"{defin}, Rp {_f(rp_hi, 'Ω')} at +{_f(tol, '%')}, Cb {_f(ln.cb, 'F')}, factor "
              f"{ln.rise_factor:.4g}")
-    details = {"definition": lim.rise_definition, "factor": ln.rise_factor}
+    # an infinite factor (a rail below the SMBus upper point) has no number
+    details = {"definition": lim.rise_definition,
+               "factor": ln.rise_factor if math.isfinite(ln.rise_factor) else None}
     if math.isfinite(bc.value[0]):
         grp.add(make(bc, lim.source_edges, f"{up} rise time {_f(bc.value[0], 's')} ({basis})",
                      subject=up, details=details))
@@ -194,6 +196,13 @@ def _never_rises(w: Words, bc, ln: LineInputs, rp_hi: float, basis: str,
     vdd, held = held_high(w.seg_in, ln, rp_hi)
     v_hi = float(w.lim.measuring_levels(vdd)[1])
     up = ln.signal.upper()
+    if vdd <= v_hi:  # the rail itself stays below the point (an SMBus rail)
+        reason = M.RISE_ABOVE_RAIL.format(line=up, level=_f(v_hi, "V"), vdd=_f(vdd, "V"))
+        chk = make(bc, w.lim.source_edges, f"{up} has no rise time: {reason}", subject=up,
+                   details=details, reason=reason)
+        chk.margin = None
+        _failed(chk, M.RISE_ABOVE_RAIL_FIX.format(level=_f(v_hi, "V")))
+        return chk
     reason = (f"{up} never rises to {_f(v_hi, 'V')}, where its rise time ends: the pins' "
               f"leakage {_f(ln.leakage, 'A')} through the pull-up holds it at {_f(held, 'V')} "
               f"on the rail's {_f(vdd, 'V')}")

@@ -63,7 +63,7 @@ def segment(ctx, seg_in: SegmentInputs, sb) -> Group:
     grp = w.grp
     for name, x in sb.figures.items():
         grp.figure(name, None if x is None else x.item(0), _unit(name))
-    _unbounded(grp)
+    _unbounded(grp, w)
     _unrisen_figures(grp, w)
     for ln in seg_in.lines.values():
         line(w, ln)
@@ -113,17 +113,22 @@ def _unrisen_figures(grp: Group, w: Words) -> None:
         vdd, held = held_high(seg_in, ln, w.r_eff(sig) * (1 + seg_in.tol))
         v_hi = float(lim.measuring_levels(vdd)[1])
         up = sig.upper()
+
+        def none_why(level, up=up, vdd=vdd, held=held):
+            if vdd <= level:  # the rail itself stays below it (an SMBus rail)
+                return M.RISE_NONE_RAIL.format(line=up, level=_f(level, "V"), vdd=_f(vdd, "V"))
+            return RISE_NONE.format(line=up, level=_f(level, "V"), held=_f(held, "V"))
+
         for name, level in (("rise_time", v_hi), ("rise_time_10_90", 0.9 * vdd)):
             if held < level and name not in worst:
-                worst[name] = RISE_NONE.format(line=up, level=_f(level, "V"),
-                                               held=_f(held, "V"))
+                worst[name] = none_why(level)
         if held < 0.9 * vdd:  # the line's own 10–90 % rise
             f = grp.figures.get(f"rise_time_10_90_{sig}")
             if f is not None and f.value is not None:
                 grp.figure(f"rise_time_10_90_{sig}", None, f.unit, RISE_NONE.format(
                     line=up, level=_f(0.9 * vdd, "V"), held=_f(held, "V")))
         if held < v_hi:
-            why = RISE_NONE.format(line=up, level=_f(v_hi, "V"), held=_f(held, "V"))
+            why = none_why(v_hi)
             follows = {"sda": "sda_setup_margin", "scl": "scl_frequency_effective"}[sig]
             for name in (f"rise_time_{sig}", follows):
                 f = grp.figures.get(name)
@@ -135,7 +140,7 @@ def _unrisen_figures(grp: Group, w: Words) -> None:
             grp.figure(name, None, f.unit, why)
 
 
-def _unbounded(grp: Group) -> None:
+def _unbounded(grp: Group, w: Words) -> None:
     """An infinite fall time, and the effective clock worked out from it (0 Hz), are
     none: a line that never falls has neither.  An infinite Rp(max) (Cb is 0) or Rp(min)
     (no resistor large enough) is none.  Each with its reason in words, which the text
@@ -144,7 +149,11 @@ def _unbounded(grp: Group) -> None:
         if f.value is None or isinstance(f.value, (bool, str)) or math.isfinite(f.value):
             continue
         if name.startswith("rp_max"):
-            grp.figure(name, None, f.unit, RP_MAX_UNBOUNDED)
+            grp.figure(name, None, f.unit, _rp_max_none(w, name))
+        elif name == "rise_factor":  # an SMBus rail below the rise's upper point
+            v_hi = float(w.lim.measuring_levels(float(w.seg_in.vdd[0]))[1])
+            grp.figure(name, None, f.unit, M.RISE_FACTOR_NONE.format(
+                level=_f(v_hi, "V"), vdd=_f(float(w.seg_in.vdd[0]), "V")))
         elif name.startswith("rp_min"):   # the number stays (the batch holds it alike)
             grp.figure(name, f.value, f.unit, RP_MIN_NONE)
     for name in _FALL_FIGURES:
@@ -154,6 +163,17 @@ def _unbounded(grp: Group) -> None:
             if name == "fall_time_scl":
                 grp.figure("scl_frequency_effective", None, _unit("scl_frequency_effective"),
                            FALL_NONE.format(line="SCL"))
+
+
+def _rp_max_none(w: Words, name: str) -> str:
+    """Why an Rp(max) figure (``rp_max``, ``rp_max_sda``...) is none: Cb is 0, or the
+    rise never reaches its upper point on the rail's minimum (infinite factor)."""
+    lines = w.seg_in.lines
+    sigs = [name.rsplit("_", 1)[1]] if name.rsplit("_", 1)[1] in lines else list(lines)
+    if any(lines[s].cb > 0 and not math.isfinite(lines[s].rise_factor) for s in sigs):
+        v_hi = float(w.lim.measuring_levels(float(w.seg_in.vdd[0]))[1])
+        return M.RP_MAX_NO_RISE.format(level=_f(v_hi, "V"))
+    return RP_MAX_UNBOUNDED
 
 
 def _timing(w: Words, sb) -> None:
@@ -218,6 +238,13 @@ def _timing(w: Words, sb) -> None:
     value = getattr(devices[ref].part.timing, field)
     src = (f"{which} {value_source(devices[ref], f'timing.{field}', value)}"
            if value is not None else f"tVD;DAT {lim.source_vd_dat}")
+    if not math.isfinite(one(t["t_r"])):  # SDA never completes its rise
+        v_hi = float(lim.measuring_levels(float(seg_in.vdd[0]))[1])
+        chk = make(bc, f"{lim.source_timing}; {src}", M.SETUP_NO_RISE.format(
+            level=_f(v_hi, "V"), limit=_f(lim.t_su_dat, "s")), subject=f"SDA {ref}")
+        chk.value = chk.margin = None
+        grp.add(chk)
+        return
     chk = make(bc, f"{lim.source_timing}; {src}",
                f"SDA data setup tLOW {_f(t['t_low'], 's')} − {which} {_f(tvd, 's')} "
                f"({ref}{', incl. bridge delays' if tvd > own else ''}) − tr "

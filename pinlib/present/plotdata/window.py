@@ -128,8 +128,11 @@ def pullup_window_data(bus: Bus, design: Design, segment_id: str | None = None,
     bottom = min(cb0 / 10.0, 5e-12) if cb0 > 0 else 1e-12
     n = max(int(points), 3)
     cb = np.unique(np.append(np.geomspace(bottom, top, n), cb0 if cb0 > 0 else bottom))
-    rp_max = np.asarray(rc.rp_max(lim.tr_max, cb, ln.rise_factor), dtype=float)
-    rp_max0 = float(rc.rp_max(lim.tr_max, cb0, ln.rise_factor)) if cb0 > 0 else math.inf
+    if math.isfinite(ln.rise_factor):
+        rp_max = np.asarray(rc.rp_max(lim.tr_max, cb, ln.rise_factor), dtype=float)
+        rp_max0 = float(rc.rp_max(lim.tr_max, cb0, ln.rise_factor)) if cb0 > 0 else math.inf
+    else:  # an SMBus rail below the rise's upper point: the rise bounds nothing
+        rp_max, rp_max0 = np.full(cb.shape, math.inf), math.inf
     source = (f"UM10204 rev. 6 §7.1 eq. 1 and 2; tr(max) {format_si(lim.tr_max, 's')} from "
               f"{lim.source_edges}")
     return PullupWindowData(bus.id, seg_in.segment.id, signal, cb, float(ln.rp_min), rp_max,

@@ -5,7 +5,6 @@ from __future__ import annotations
 
 import base64
 import re
-import textwrap
 
 from pinlib import __version__
 from pinlib.core import messages as M
@@ -137,24 +136,14 @@ def _wrapped(text: str, marker: str = "", hang: str | None = None) -> list[str]:
     return out
 
 
-def _whole_words(text: str) -> list[str]:
-    """Markdown text (escaped already) in lines of at most :data:`TEXT_WIDTH`
-    characters where its words allow, a word longer than that kept whole on a line of
-    its own (a viewer joins the lines with a space: a name cut in two would read as two
-    words).  A line that would start a block is made plain, as in :func:`_wrapped`."""
-    lines = textwrap.wrap(text, TEXT_WIDTH - 1, break_long_words=False,
-                          break_on_hyphens=False) or [""]
-    return [lines[0]] + [_MD_LINE_START.sub(_plain_start, ln, count=1) for ln in lines[1:]]
-
-
 def _heading_lines(marks: str, name: str, tail: str = "", detail: str | None = None
                    ) -> list[str]:
-    """A heading of at most :data:`TEXT_WIDTH` characters (a Markdown heading cannot
-    wrap), and the lines under it: ``marks`` (``"###"``), the user's ``name`` escaped,
-    ``tail`` (pinlib's own, ``": PASS"``) after it.  ``detail`` follows the name after
-    " — " where the whole fits, else it goes on a line of its own under the heading.  A
-    name too long for the line is cut with "…" in the heading and written whole under
-    it, so the identifying name is never lost."""
+    """A heading and the lines under it: ``marks`` (``"###"``), the user's ``name``
+    escaped, ``tail`` (pinlib's own, ``": PASS"``) after it.  ``detail`` follows the
+    name after " — " where the whole fits :data:`TEXT_WIDTH`, else it goes on a line of
+    its own under the heading.  The name itself is never cut: a heading is one line a
+    viewer wraps itself, not a terminal's, and a heading cut with "…" read as a
+    different title (it may run past the width, as a long word in a paragraph does)."""
 
     def head(text: str) -> str:
         return f"{marks} {_mt(text) if tail else _title(text)}{tail}"
@@ -165,14 +154,7 @@ def _heading_lines(marks: str, name: str, tail: str = "", detail: str | None = N
         if len(line) <= TEXT_WIDTH:
             return [line, ""]
         under = [*_wrapped(f"*{_mt(detail)}*"), ""]
-    line = head(name)
-    if len(line) > TEXT_WIDTH:
-        cut = name
-        while cut and len(head(cut.rstrip() + "…")) > TEXT_WIDTH:
-            cut = cut[:-1]
-        line = head(cut.rstrip() + "…")
-        under = [*_whole_words(_mt(name)), "", *under]
-    return [line, "", *under]
+    return [head(name), "", *under]
 
 
 def _row(cells) -> str:
