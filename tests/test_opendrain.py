@@ -631,6 +631,16 @@ devices = [
 """
 
 
+def test_a_bridges_pin_values_are_cited_under_their_side(tmp_path):
+    # a repeater's pins are written under sides.a / sides.b of its file: a source names
+    # the field as the file writes it, never "t-repeater pins.sda.v_il"
+    res = bus_result(tmp_path, repeater_bus())
+    cited = [c.source for s in res.segments for c in s.checks
+             if "t-repeater " in (c.source or "")]
+    assert any("t-repeater sides.b.pins." in c for c in cited)
+    assert not any("t-repeater pins." in c for c in cited)
+
+
 def test_repeater_offset_against_far_receivers(tmp_path):
     res = bus_result(tmp_path, repeater_bus())
     far = res.segments[1]
