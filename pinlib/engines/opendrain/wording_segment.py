@@ -341,20 +341,57 @@ def _bridges(w: Words) -> None:
     for d in offsets:
         _offset(w, d)
     if offsets:
-        w.take("bridge-offset-facing")
-        ok = len(offsets) < 2
-        names = ", ".join(f"{d.ref} side {d.side}" for d in offsets)
-        chk = check_true("bridge-offset-facing", ok,
-                         "common practice, no source: a static-offset side reads another's "
-                         "offset low as a driven low",
-                         f"static-offset sides on this segment: {names}" + (
-                             "" if ok else ": each sees the other's offset low as a driven low "
-                             "and holds it — the bus locks low"), subject=offsets[0].ref)
-        if not ok:
-            chk.fix = ("never join two static-offset sides: turn one repeater round or use a "
-                       "repeater without offset on one side")
-            chk.message += f"; {chk.fix}"
-        grp.add(chk)
+        _facing(w, offsets)
+
+
+def _offset_low(w: Words, d):
+    """A static-offset side's low level (its ``low_offset``, None where not stated),
+    its SDA tap and the VIL that side reads with (its pin's, else the
+    specification's): (low, tap, vil), the values as :class:`Sourced`."""
+    tap = next(t for t in w.seg_in.lines["sda"].taps if t.dev is d)
+    vil = tap.pin.v_il if tap.pin.v_il is not None else w.lim.default_levels()[0]
+    return d.part.sides[d.side].low_offset, tap, vil
+
+
+def _facing(w: Words, offsets: list) -> None:
+    """Static-offset sides on one segment: one alone passes; with two, each one's low
+    against the other's input threshold says what goes wrong: a low one does not read
+    does not pass it, and two that read each other's lows hold each other low."""
+    bc = w.take("bridge-offset-facing")
+    names = ", ".join(f"{d.ref} side {d.side}" for d in offsets)
+    msg = f"static-offset sides on this segment: {names}"
+    if len(offsets) < 2:
+        w.grp.add(check_true("bridge-offset-facing", True, f"{_COMMON}: no other static-offset "
+                             "side on this segment to face", msg, subject=offsets[0].ref))
+        return
+    x, y = offsets[0], offsets[1]
+    (lx, tx, vx), (ly, ty, vy) = _offset_low(w, x), _offset_low(w, y)
+    kind = x.part.bridge.kind if x.part.bridge is not None else "bridge"
+    nx, ny = f"{x.ref} side {x.side}", f"{y.ref} side {y.side}"
+    src = M.FACING_SOURCE.format(
+        x=nx, y=ny, offset_source=value_source(x, f"sides.{x.side}.low_offset", lx),
+        vil_source=ty.source("v_il") if ty.pin.v_il is not None else w.lim.source_levels)
+    if lx is None or ly is None:
+        why = M.FACING_UNSTATED.format(x=nx if lx is None else ny,
+                                       side=(x if lx is None else y).side)
+    else:
+        ox, oy = float(lx.at(tx.vdd)), float(ly.at(ty.vdd))
+        ix, iy = float(vx.at(tx.vdd)), float(vy.at(ty.vdd))
+        f = {"x": nx, "y": ny, "off": _f(ox, "V"), "vil": _f(iy, "V"),
+             "off2": _f(oy, "V"), "vil2": _f(ix, "V")}
+        if ox <= iy and oy <= ix:
+            why = M.FACING_LOCK.format(**f)
+        elif ox > iy and oy > ix:
+            why = M.FACING_NEITHER.format(**f)
+        elif ox <= iy:  # y reads x's low, x does not read y's
+            why = M.FACING_ONE_WAY.format(**f)
+        else:
+            why = M.FACING_ONE_WAY.format(x=ny, y=nx, off=f["off2"], vil=f["vil2"],
+                                          off2=f["off"], vil2=f["vil"])
+    chk = check_true("bridge-offset-facing", False, src, f"{msg}: {why}", subject=x.ref)
+    chk.fix = M.FACING_FIX.format(kind=kind)
+    chk.message += f"; {chk.fix}"
+    w.grp.add(firm_or_soft(chk, bc, lx, vx, ly, vy, what="low_offset and VIL"))
 
 
 def _gate_drive(w: Words, link) -> None:
@@ -402,8 +439,15 @@ def _offset(w: Words, d) -> None:
                f"{d.ref} drives side {d.side} low to {off} (static offset) against VIL "
                f"{_f(bc.limit[0], 'V')} of {r.tap.label} ({sig.upper()})", subject=d.ref)
     if chk.status == "fail":
-        chk.fix = (f"every device on the offset side must read {off} as low: "
-                   "replace those with VIL below it, or turn the repeater so its offset "
-                   "side faces devices with VIL = 0.3·VDD at a higher rail")
+        kind = d.part.bridge.kind if d.part.bridge is not None else "bridge"
+        low, spec = float(bc.value[0]), w.lim.default_levels()[0]
+        if w.lim.protocol == "smbus":  # fixed levels: no rail raises a VIL
+            vil = float(spec.at())
+            fix = M.BRIDGE_OFFSET_FIX_SMBUS_HIGH if low > vil else M.BRIDGE_OFFSET_FIX_SMBUS
+            chk.fix = fix.format(offset=off, kind=kind, vil=_f(vil, "V"))
+        else:  # the specification's VIL, a fraction of VDD, reaches the offset at a rail
+            scale = spec.value.scale
+            chk.fix = M.BRIDGE_OFFSET_FIX.format(offset=off, kind=kind, scale=scale,
+                                                 rail=_f(low / scale, "V"))
         chk.message += f"; {chk.fix}"
     w.grp.add(firm_or_soft(chk, bc, r.v_il_value, what="VIL"))
