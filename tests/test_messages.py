@@ -4865,6 +4865,39 @@ def _(env):
     return _facing(env).fix
 
 
+# ---------------------------------------------------------------- power-off
+def _switched_gauge(env):
+    """power-off of the built-in battery-gauge-smbus on a switched rail: its class states
+    no off_tolerant (tests/test_power_off.py)."""
+    from test_bridge_offset import _result
+    from test_opendrain import one_bus
+
+    body = one_bus(pullup="2.2 kΩ", protocol="smbus", mode="100k", devices=[
+        '{ ref = "U1", part = "mcu-3v3", role = "controller" }',
+        '{ ref = "U2", part = "battery-gauge-smbus", switched = true }'])
+    return _result(env.tmp, body).check("power-off")
+
+
+_GAUGE_FIELDS = "pins.sda.off_tolerant, pins.scl.off_tolerant"
+
+
+@case("POWER_OFF_TAKEN", M.POWER_OFF_TAKEN.format(part="battery-gauge-smbus",
+                                                  fields=_GAUGE_FIELDS))
+def _(env):
+    return _switched_gauge(env).message
+
+
+@case("POWER_OFF_UNSTATED")
+def _(env):
+    return _switched_gauge(env).message
+
+
+@case("POWER_OFF_SOURCE_UNSTATED", M.POWER_OFF_SOURCE_UNSTATED.format(
+    part="battery-gauge-smbus", fields=_GAUGE_FIELDS))
+def _(env):
+    return _switched_gauge(env).source
+
+
 @pytest.mark.parametrize(("name", "expected", "trigger"), CASES)
 def test_message(name, expected, trigger, tmp_path, monkeypatch, capsys):
     text = getattr(M, name)

@@ -503,12 +503,14 @@ def test_specification_levels_of_a_device_on_its_own_rail_follow_the_pullup_rail
                        for x in drawn.values), (own, c.id)
 
 
-def test_switched_device_fails_with_the_clamp_current(tmp_path):
+def test_switched_device_warns_with_the_clamp_current(tmp_path):
+    # t-target states no off_tolerant: its pins are taken as clamped (a rule of thumb, a
+    # warning; tests/test_power_off.py has a datasheet's statement, which fails)
     devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
                '{ ref = "U2", part = "t-target", switched = true }']
     res = bus_result(tmp_path, one_bus(pullup="2.2 kΩ", ptol="1 %", devices=devices))
     chk = res.check("power-off")
-    assert chk.status == "fail" and chk.subject == "U2"
+    assert chk.status == "warn" and chk.subject == "U2"
     # derived from Ohm's law with a 0.6 V clamp drop (common practice): (3.3 - 0.6) / 2.178 kΩ
     assert chk.details["clamp_current"]["SDA"] == pytest.approx(2.7 / (2200 * 0.99), rel=1e-9)
     assert "power-off-tolerant" in chk.fix

@@ -723,6 +723,17 @@ FACING_LOCK = ("each reads the other's offset low as a driven low ({x} {off} aga
 FACING_UNSTATED = "{x} states no offset level (sides.{side}.low_offset)"
 FACING_FIX = ("never join two static-offset sides: turn one {kind} round or use one "
               "without an offset on this side")
+# pinlib/engines/opendrain/wording_segment.py: power-off of a switched device whose part
+# states no off_tolerant for some pins ({fields}: pins.<pin>.off_tolerant, a bridging
+# part's sides.<s>.pins...): what its pins are taken as, in place of "its pins are not
+# power-off tolerant"; and what it adds after its fix (a warning, not a failure)
+POWER_OFF_TAKEN = ("{part} states no {fields}, so its pins are taken as "
+                   "clamped to its rail")
+POWER_OFF_UNSTATED = (" (no statement, a rule of thumb: a warning, not a failure; record "
+                      "the datasheet's value there, true where the pins do not load the bus "
+                      "while the part is unpowered, else false)")
+# ...its source where some pin's off_tolerant is not stated ({fields} as above)
+POWER_OFF_SOURCE_UNSTATED = "{part} {fields}: not stated"
 # A check whose limit is a class's typical value or an estimate, where it would fail
 # (model.result.soften): appended to its message
 SOFT_LIMIT_GENERIC = (" (the limit is a value typical of the part's class, not its "

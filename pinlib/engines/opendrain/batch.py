@@ -435,11 +435,14 @@ def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
     for d in seg.devices:
         if not d.switched:
             continue
-        ok = np.asarray(True)
+        ok, firm = np.asarray(True), np.asarray(False)
         for t in taps:
             if t.dev is d:
                 ok = np.logical_and(ok, t.pin.off_tolerant)
-        out.truth("power-off", None, ok, (d.ref,))
+                # a pin a firm statement (a datasheet's) says is not tolerant fails
+                firm = np.logical_or(firm, np.logical_and(
+                    np.logical_not(t.pin.off_tolerant), np.logical_not(t.pin.soft_off_tolerant)))
+        out.truth("power-off", None, ok, (d.ref,), soft=np.logical_not(firm))
 
 
 def _bridge_checks(ctx, s: _Seg, out: _Out) -> None:

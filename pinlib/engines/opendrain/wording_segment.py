@@ -37,7 +37,15 @@ from pinlib.engines.opendrain.wording import (
     make,
     row_corner,
 )
-from pinlib.model.result import Group, check_true
+from pinlib.library.loader import off_tolerant_stated
+from pinlib.library.values import SOFT_BASES
+from pinlib.model.result import (
+    STATUSES,
+    Group,
+    check_true,
+    soften,
+    softest,
+)
 
 #: The units of the segment's own figures (the lines' are in ``explain._UNITS``).
 _SEGMENT_UNITS = {"supply": "V", "pullup_resistor": "Ω", "rise_factor": "",
@@ -291,7 +299,7 @@ def _power(w: Words, taps: list) -> None:
     for d in seg_in.segment.devices:
         if not d.switched:
             continue
-        w.take("power-off")
+        bc = w.take("power-off")
         loading = [t for t in taps if t.dev is d and not t.pin.off_tolerant]
         if not loading:
             grp.add(check_true("power-off", True, f"{d.part_id} pins off_tolerant",
@@ -303,10 +311,22 @@ def _power(w: Words, taps: list) -> None:
             sig = "sda" if t.pin.function == SIGNALS["sda"] else "scl"
             currents.append((sig.upper(), (v_max - CLAMP_DROP) / (w.r_eff(sig) * (1 - tol))))
         shown = ", ".join(f"{s} {_f(i, 'A')}" for s, i in currents)
+        stated = [(t, off_tolerant_stated(t.pin)) for t in loading]
+        firm = [(t, st) for t, st in stated if st is not None and st[0] not in SOFT_BASES]
+        unstated = [t for t, st in stated if st is None]
+        clamp = (f"{_COMMON}: input clamp diodes to the device's own rail "
+                 f"({CLAMP_DROP:g} V drop)")
+        if firm or not unstated:  # the statements it rests on: the firm ones, else all
+            said = [_stated_source(d, t, st) for t, st in (firm or stated)]
+        else:
+            said = [M.POWER_OFF_SOURCE_UNSTATED.format(
+                part=d.part_id, fields=", ".join(_off_field(t) for t in unstated))]
+        fields = ", ".join(_off_field(t) for t in unstated)
+        how = ("its pins are not power-off tolerant" if firm or not unstated else
+               M.POWER_OFF_TAKEN.format(part=d.part_id, fields=fields))
         chk = check_true(
-            "power-off", False, f"{_COMMON}: input clamp diodes to the device's own rail "
-            f"({CLAMP_DROP:g} V drop)",
-            f"{d.ref} sits on a switched rail and its pins are not power-off tolerant: with its "
+            "power-off", False, f"{'; '.join(said)}; {clamp}",
+            f"{d.ref} sits on a switched rail and {how}: with its "
             f"rail off, its input clamps hold {' and '.join(s for s, _ in currents)} about "
             f"{CLAMP_DROP:g} V above the dead rail (below every VIL: the bus stops) and the "
             f"pull-ups feed {shown} into it, back-powering its rail", subject=d.ref,
@@ -315,7 +335,33 @@ def _power(w: Words, taps: list) -> None:
                    "while the bus runs, or isolate it behind a bus switch or buffer that "
                    "disconnects when its rail is off")
         chk.message += f"; fix: {chk.fix}"
+        if not firm and unstated:  # nothing states it: the clamps are a rule of thumb
+            chk.status = "warn"
+            chk.details = {**chk.details, "rule_of_thumb": True}
+            chk.message += M.POWER_OFF_UNSTATED
+        elif not firm:  # stated by a class or an estimate
+            soften(chk, softest(st[0] for _, st in stated), what="off_tolerant")
+        if STATUSES.index(chk.status) != bc.status.item(0):
+            raise RuntimeError(f"open-drain wording of power-off {d.ref}: status "
+                               f"{chk.status}, the batch's {STATUSES[bc.status.item(0)]}")
         grp.add(chk)
+
+
+def _off_field(t) -> str:
+    """A pin's ``off_tolerant`` field as its part file writes it (a bridging part's under
+    its side)."""
+    side = t.dev.part_side
+    return f"{f'sides.{side}.pins' if side else 'pins'}.{t.pin_name}.off_tolerant"
+
+
+def _stated_source(d, t, stated) -> str:
+    """Where a pin's stated ``off_tolerant`` comes from: the field, its value, and the
+    file that states it with that file's basis and source."""
+    basis, source, pid = stated
+    where = f" from {pid}" if pid != d.part_id else ""
+    bits = ": ".join(b for b in (basis, source) if b)
+    return (f"{d.part_id} {_off_field(t)} = {str(bool(t.pin.off_tolerant)).lower()}{where}"
+            f" ({bits})")
 
 
 def _bridges(w: Words) -> None:
