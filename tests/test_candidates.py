@@ -122,9 +122,19 @@ def test_a_failing_yes_no_check_sets_the_worst_without_a_margin(tmp_path):
     # the position's device sits on a switched rail: a candidate whose pins are not
     # power-off tolerant fails the power-off check, which has no margin; its worst is
     # that check with no number ("—"), not a passing check's positive margin
+    # the check fails only where a datasheet says the pins are not tolerant: a team part
+    # (invented) that says so; a part that states nothing of it warns
+    team = tmp_path / "team"
+    team.mkdir()
+    (team / "eeprom-clamped.toml").write_text(
+        'format = "pinlib.part/1"\nid = "eeprom-clamped"\ntitle = "EEPROM (invented)"\n'
+        'category = "memory"\nextends = "eeprom-i2c"\n'
+        'provenance = { basis = "datasheet", source = "invented test data" }\n'
+        '[pins.sda]\noff_tolerant = false\n[pins.scl]\noff_tolerant = false\n',
+        encoding="utf-8")
     path = tmp_path / "d.toml"
     path.write_text(SWITCHED, encoding="utf-8")
-    d = load_design(path)
+    d = load_design(path, library_folders=[team])
     fast, slow = cand.rank_candidates(d, "U2"), cand.rank_candidates_slow(d, "U2")
     assert_same_ranking(fast, slow)
     failing = [c for c in fast.candidates if c.status == "fail"]

@@ -4984,6 +4984,136 @@ def _(env):
                    "SDA=i2c-sda", "--id", "x", "--into", str(env.tmp / "parts"))
 
 
+# ---------------------------------------------------------------- static-offset bridges
+def _bridge_check(env, body: str, check_id: str, team: dict | None = None):
+    """The ``check_id`` of the middle segment (the offset side) of a bus of test parts
+    (tests/data/parts, test_bridge_offset's, invented)."""
+    from test_bridge_offset import _result
+
+    return _result(env.tmp, body, team).segments[1].check(check_id)
+
+
+def _offset_bus(protocol: str, part: str = "t-repeater") -> str:
+    from test_opendrain import repeater_bus
+
+    body = repeater_bus("t-sensor-1v8", "1.8 V").replace("t-repeater", part)
+    return body if protocol == "i2c" else body.replace('"i2c"', '"smbus"').replace(
+        '"fast"', '"100k"')
+
+
+@case("BRIDGE_OFFSET_FIX", M.BRIDGE_OFFSET_FIX.format(offset="600 mV", kind="repeater",
+                                                      scale=0.3, rail="2 V"))
+def _(env):
+    # derived: the 0.6 V offset (invented) over I2C's 0.3·VDD (UM10204 table 9) is 2 V
+    return _bridge_check(env, _offset_bus("i2c"), "bridge-offset").fix
+
+
+@case("BRIDGE_OFFSET_FIX_SMBUS", M.BRIDGE_OFFSET_FIX_SMBUS.format(
+    offset="600 mV", kind="repeater", vil="800 mV"))  # published: SMBus 3.1, VIL 0.8 V
+def _(env):
+    return _bridge_check(env, _offset_bus("smbus"), "bridge-offset").fix
+
+
+@case("BRIDGE_OFFSET_FIX_SMBUS_HIGH", M.BRIDGE_OFFSET_FIX_SMBUS_HIGH.format(
+    offset="850 mV", kind="isolator", vil="800 mV"))  # published: SMBus 3.1, VIL 0.8 V
+def _(env):
+    from test_bridge_offset import ISOLATOR
+
+    body = _offset_bus("smbus", "t-isolator-offset")
+    return _bridge_check(env, body, "bridge-offset", {"t-isolator-offset": ISOLATOR}).fix
+
+
+def _facing(env, part="t-repeater", other=None, team=None):
+    from test_bridge_offset import facing_bus
+
+    return _bridge_check(env, facing_bus(part, other=other), "bridge-offset-facing", team)
+
+
+
+@case("FACING_SOURCE", lambda: M.FACING_SOURCE.format(
+    x="U5 side b", y="U6 side b",
+    offset_source="t-repeater sides.b.low_offset (t-repeater.toml), datasheet: test data, "
+                  "invented",
+    vil_source="t-repeater sides.b.pins.sda.v_il (t-repeater.toml), datasheet: test data, "
+               "invented"))
+def _(env):
+    return _facing(env).source
+
+
+@case("FACING_NEITHER", M.FACING_NEITHER.format(x="U5 side b", y="U6 side b", off="600 mV",
+                                                vil="400 mV", off2="600 mV", vil2="400 mV"))
+def _(env):
+    # t-repeater (invented): offset low 0.6 V, side b VIL 0.4 V
+    return _facing(env).message
+
+
+@case("FACING_ONE_WAY", M.FACING_ONE_WAY.format(x="U6 side b", y="U5 side b", off="600 mV",
+                                                vil="700 mV", off2="600 mV", vil2="400 mV"))
+def _(env):
+    # U5 reads below 0.7 V (invented), U6 only below 0.4 V: U5 reads U6's 0.6 V low
+    from test_bridge_offset import HIGH_VIL
+
+    return _facing(env, "t-repeater-high-vil", "t-repeater", HIGH_VIL).message
+
+
+@case("FACING_LOCK", M.FACING_LOCK.format(x="U5 side b", y="U6 side b", off="600 mV",
+                                          vil="700 mV", off2="600 mV", vil2="700 mV"))
+def _(env):
+    from test_bridge_offset import HIGH_VIL
+
+    return _facing(env, "t-repeater-high-vil", team=HIGH_VIL).message
+
+
+_NO_OFFSET = {"t-repeater-no-offset": (
+    Path(__file__).parent / "data" / "parts" / "t-repeater.toml").read_text(
+        encoding="utf-8").replace('id = "t-repeater"', 'id = "t-repeater-no-offset"').replace(
+        'low_offset = "0.6 V"\n', "")}
+
+
+@case("FACING_UNSTATED", M.FACING_UNSTATED.format(x="U6 side b", side="b"))
+def _(env):
+    # a copy of t-repeater (invented) whose side b states no offset level
+    return _facing(env, "t-repeater", "t-repeater-no-offset", _NO_OFFSET).message
+
+
+@case("FACING_FIX", M.FACING_FIX.format(kind="repeater"))
+def _(env):
+    return _facing(env).fix
+
+
+# ---------------------------------------------------------------- power-off
+def _switched_gauge(env):
+    """power-off of the built-in battery-gauge-smbus on a switched rail: its class states
+    no off_tolerant (tests/test_power_off.py)."""
+    from test_bridge_offset import _result
+    from test_opendrain import one_bus
+
+    body = one_bus(pullup="2.2 kΩ", protocol="smbus", mode="100k", devices=[
+        '{ ref = "U1", part = "mcu-3v3", role = "controller" }',
+        '{ ref = "U2", part = "battery-gauge-smbus", switched = true }'])
+    return _result(env.tmp, body).check("power-off")
+
+
+_GAUGE_FIELDS = "pins.sda.off_tolerant, pins.scl.off_tolerant"
+
+
+@case("POWER_OFF_TAKEN", M.POWER_OFF_TAKEN.format(part="battery-gauge-smbus",
+                                                  fields=_GAUGE_FIELDS))
+def _(env):
+    return _switched_gauge(env).message
+
+
+@case("POWER_OFF_UNSTATED")
+def _(env):
+    return _switched_gauge(env).message
+
+
+@case("POWER_OFF_SOURCE_UNSTATED", M.POWER_OFF_SOURCE_UNSTATED.format(
+    part="battery-gauge-smbus", fields=_GAUGE_FIELDS))
+def _(env):
+    return _switched_gauge(env).source
+
+
 @pytest.mark.parametrize(("name", "expected", "trigger"), CASES)
 def test_message(name, expected, trigger, tmp_path, monkeypatch, capsys):
     text = getattr(M, name)

@@ -503,12 +503,14 @@ def test_specification_levels_of_a_device_on_its_own_rail_follow_the_pullup_rail
                        for x in drawn.values), (own, c.id)
 
 
-def test_switched_device_fails_with_the_clamp_current(tmp_path):
+def test_switched_device_warns_with_the_clamp_current(tmp_path):
+    # t-target states no off_tolerant: its pins are taken as clamped (a rule of thumb, a
+    # warning; tests/test_power_off.py has a datasheet's statement, which fails)
     devices = ['{ ref = "U1", part = "t-ctrl-3v3", role = "controller" }',
                '{ ref = "U2", part = "t-target", switched = true }']
     res = bus_result(tmp_path, one_bus(pullup="2.2 kΩ", ptol="1 %", devices=devices))
     chk = res.check("power-off")
-    assert chk.status == "fail" and chk.subject == "U2"
+    assert chk.status == "warn" and chk.subject == "U2"
     # derived from Ohm's law with a 0.6 V clamp drop (common practice): (3.3 - 0.6) / 2.178 kΩ
     assert chk.details["clamp_current"]["SDA"] == pytest.approx(2.7 / (2200 * 0.99), rel=1e-9)
     assert "power-off-tolerant" in chk.fix
@@ -631,6 +633,16 @@ devices = [
 """
 
 
+def test_a_bridges_pin_values_are_cited_under_their_side(tmp_path):
+    # a repeater's pins are written under sides.a / sides.b of its file: a source names
+    # the field as the file writes it, never "t-repeater pins.sda.v_il"
+    res = bus_result(tmp_path, repeater_bus())
+    cited = [c.source for s in res.segments for c in s.checks
+             if "t-repeater " in (c.source or "")]
+    assert any("t-repeater sides.b.pins." in c for c in cited)
+    assert not any("t-repeater pins." in c for c in cited)
+
+
 def test_repeater_offset_against_far_receivers(tmp_path):
     res = bus_result(tmp_path, repeater_bus())
     far = res.segments[1]
@@ -651,7 +663,7 @@ def test_repeater_offset_against_far_receivers(tmp_path):
     assert chk.limit == pytest.approx(0.513)
 
 
-def test_two_offset_sides_facing_lock_the_bus(tmp_path):
+def test_two_offset_sides_facing_fail(tmp_path):
     body = """
 [[bus]]
 id = "r"
@@ -684,7 +696,9 @@ devices = [
     res = bus_result(tmp_path, body)
     chk = res.segments[1].check("bridge-offset-facing")
     assert chk.status == "fail"
-    assert "locks low" in chk.message
+    # t-repeater (invented): side b reads a low only below 0.4 V, under the other's
+    # 0.6 V offset: the lows do not pass (tests/test_bridge_offset.py has the rest)
+    assert "does not pass" in chk.message and "locks low" not in chk.message
 
 
 # --------------------------------------------------------------------------- results and API

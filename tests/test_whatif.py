@@ -499,6 +499,53 @@ def test_parameters_of_a_design(tmp_path):
     assert names["mixed trace and cable length"].nominal == pytest.approx(0.42)
 
 
+MODULE_BUS = """
+[[bus]]
+id = "fan"
+protocol = "smbus"
+mode = "100k"
+
+[[bus.segment]]
+id = "low"
+supply = "1.8 V"
+supply_tolerance = "5 %"
+pullup = "2.2 kΩ"
+devices = [
+  { ref = "U1", part = "mcu-1v8", role = "controller" },
+  { ref = "M1", part = "level-translator-module", side = "a" },
+]
+
+[[bus.segment]]
+id = "high"
+supply = "3.3 V"
+supply_tolerance = "5 %"
+pullup = "2.2 kΩ"
+devices = [
+  { ref = "M1", part = "level-translator-module", side = "b" },
+  { ref = "U3", part = "fan-controller-smbus" },
+]
+"""
+
+
+def test_a_bridges_two_sides_are_two_parameters_by_name(tmp_path):
+    # the module's pull-ups on side a (1.8 V) and side b (3.3 V) are two resistors: two
+    # parameters, each named by its side (one name for both read as a repeated corner)
+    path = tmp_path / "m.toml"
+    path.write_text(HEAD + MODULE_BUS, encoding="utf-8")
+    d = load_design(path)
+    names = [p.name for p in whatif.parameters(d)]
+    assert len(names) == len(set(names))
+    for want in ("M1 side a SDA on-part pull-up", "M1 side b SDA on-part pull-up",
+                 "M1 side a SCL on-part pull-up", "M1 side b SCL on-part pull-up"):
+        assert want in names, want
+    res = whatif.corners(d)
+    listed = [p["name"] for p in res.to_json()["parameters"]["fan"]]
+    assert len(listed) == len(set(listed))
+    for found in res.checks:
+        got = [n for n, _, _ in found.corner]
+        assert len(got) == len(set(got))
+
+
 # --------------------------------------------------------------------------- corners
 
 

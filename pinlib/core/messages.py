@@ -714,6 +714,51 @@ SETUP_SOFT_VALID = ("; {which} {value} is {kind} (the limit is firm: the specifi
                     "tSU;DAT); recording the part's {field} makes the number its own")
 SETUP_SOFT_GENERIC = "a value typical of {ref}'s class"
 SETUP_SOFT_ESTIMATE = "an estimate for {ref}"
+# pinlib/engines/opendrain/wording_segment.py: bridge-offset's fix, where a static-offset
+# side's low ({offset}) is above a receiver's VIL on that side ({kind}: the bridge's kind,
+# "repeater", "isolator"; {rail}: the rail at which 0.3·VDD reaches the offset)
+BRIDGE_OFFSET_FIX = ("every device on the offset side must read {offset} as low: put "
+                     "devices whose VIL is above {offset} there, or turn the {kind} so its "
+                     "offset side faces devices with VIL = {scale:g}·VDD on a rail above "
+                     "{rail}")
+# ...on an SMBus segment, whose levels are fixed ({vil}: the specification's VIL): no
+# higher rail raises a VIL; an offset at or below it, SMBus-level devices read
+BRIDGE_OFFSET_FIX_SMBUS = ("every device on the offset side must read {offset} as low: put "
+                           "devices with SMBus levels there (VIL {vil}) in place of those "
+                           "with a VIL below {offset}, or turn the {kind} so its offset "
+                           "side faces such devices")
+# ...an offset above the specification's VIL, which no SMBus-level device is sure to read
+BRIDGE_OFFSET_FIX_SMBUS_HIGH = ("an SMBus device is sure to read a low only below {vil}: "
+                                "replace the {kind} by one whose offset low is below that, or "
+                                "turn it so its offset side faces devices whose VIL is above "
+                                "{offset}")
+# bridge-offset-facing: two static-offset sides on one segment, one's low ({x} drives
+# {off}) against the other's input threshold ({y}'s VIL {vil}); each direction worded
+FACING_SOURCE = ("{x}'s offset low against {y}'s VIL: {offset_source}; VIL from "
+                 "{vil_source}")
+FACING_NEITHER = ("neither reads the other's offset low as a low ({y}'s VIL {vil} is "
+                  "under {x}'s offset {off}, {x}'s VIL {vil2} under {y}'s {off2}): a low "
+                  "does not pass from one to the other")
+FACING_ONE_WAY = ("{y} reads {x}'s offset low {off} as a driven low (its VIL {vil} is "
+                  "above it), but {x} reads a low only below its VIL {vil2}, under {y}'s "
+                  "offset {off2}: a low from {y} does not pass {x}")
+FACING_LOCK = ("each reads the other's offset low as a driven low ({x} {off} against "
+               "{y}'s VIL {vil}, {y} {off2} against {x}'s VIL {vil2}) and holds it: "
+               "the bus locks low")
+FACING_UNSTATED = "{x} states no offset level (sides.{side}.low_offset)"
+FACING_FIX = ("never join two static-offset sides: turn one {kind} round or use one "
+              "without an offset on this side")
+# pinlib/engines/opendrain/wording_segment.py: power-off of a switched device whose part
+# states no off_tolerant for some pins ({fields}: pins.<pin>.off_tolerant, a bridging
+# part's sides.<s>.pins...): what its pins are taken as, in place of "its pins are not
+# power-off tolerant"; and what it adds after its fix (a warning, not a failure)
+POWER_OFF_TAKEN = ("{part} states no {fields}, so its pins are taken as "
+                   "clamped to its rail")
+POWER_OFF_UNSTATED = (" (no statement, a rule of thumb: a warning, not a failure; record "
+                      "the datasheet's value there, true where the pins do not load the bus "
+                      "while the part is unpowered, else false)")
+# ...its source where some pin's off_tolerant is not stated ({fields} as above)
+POWER_OFF_SOURCE_UNSTATED = "{part} {fields}: not stated"
 # A check whose limit is a class's typical value or an estimate, where it would fail
 # (model.result.soften): appended to its message
 SOFT_LIMIT_GENERIC = (" (the limit is a value typical of the part's class, not its "

@@ -294,7 +294,20 @@ def validate_part(merged: dict, origin: dict, files: dict[str, PartFile]) -> Par
         raise _Many(record_errors(exc, origin_file=origin_file, locate=locate,
                                   blame=blame)) from None
     stamps = {pid: (str(pf.path), _file_provenance(pf.raw)) for pid, pf in files.items()}
-    return _with_origins(part, origin, own, stamps)
+    return _with_origins(part, origin, own, stamps, merged)
+
+
+#: Where a part file states a pin's ``off_tolerant`` (a plain true or false, no table of
+#: its own), the loader keeps that file's basis, source and part id on the pin under
+#: this key (not a field: a file cannot write it); :func:`off_tolerant_stated` reads it.
+STATED_OFF_TOLERANT = "_off_tolerant_stated"
+
+
+def off_tolerant_stated(pin) -> tuple | None:
+    """(basis, source, part id) of the file that states ``pin``'s ``off_tolerant``: its
+    provenance's basis (``generic`` where it names none, the format's default) and
+    source; None where no file states it (the schema's default, false, is taken). [1]"""
+    return pin.__dict__.get(STATED_OFF_TOLERANT)
 
 
 def _file_provenance(raw: dict) -> dict:
@@ -303,9 +316,11 @@ def _file_provenance(raw: dict) -> dict:
         if isinstance(prov, dict) else {}
 
 
-def _with_origins(part: Part, origin: dict, own: str, stamps: dict | None = None) -> Part:
+def _with_origins(part: Part, origin: dict, own: str, stamps: dict | None = None,
+                  merged: dict | None = None) -> Part:
     """Stamp every Sourced value with the part id whose file set it, that file, and the
-    file's basis and source where the value states none of its own."""
+    file's basis and source where the value states none of its own; and each pin whose
+    ``off_tolerant`` a file states with the basis of that file (:func:`stated_basis`)."""
     stamps = stamps or {}
 
     # Only what holds a Sourced value is rebuilt; everything else is returned as it is
@@ -330,6 +345,13 @@ def _with_origins(part: Part, origin: dict, own: str, stamps: dict | None = None
                 new = walk(value, path + (name,))
                 if new is not value:
                     changes[name] = new
+            if merged is not None and "off_tolerant" in obj.__dict__:
+                at = path + ("off_tolerant",)
+                if _raw_at(merged, at) is not None:
+                    pid = _origin_of(origin, at) or own
+                    prov = stamps.get(pid, (None, None))[1] or {}
+                    changes[STATED_OFF_TOLERANT] = (prov.get("basis") or "generic",
+                                                    prov.get("source"), pid)
             return obj.copy(**changes) if changes else obj
         return obj
 

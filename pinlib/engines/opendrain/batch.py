@@ -439,11 +439,14 @@ def _domain_checks(ctx, s: _Seg, out: _Out, taps: list) -> None:
     for d in seg.devices:
         if not d.switched:
             continue
-        ok = np.asarray(True)
+        ok, firm = np.asarray(True), np.asarray(False)
         for t in taps:
             if t.dev is d:
                 ok = np.logical_and(ok, t.pin.off_tolerant)
-        out.truth("power-off", None, ok, (d.ref,))
+                # a pin a firm statement (a datasheet's) says is not tolerant fails
+                firm = np.logical_or(firm, np.logical_and(
+                    np.logical_not(t.pin.off_tolerant), np.logical_not(t.pin.soft_off_tolerant)))
+        out.truth("power-off", None, ok, (d.ref,), soft=np.logical_not(firm))
 
 
 def _bridge_checks(ctx, s: _Seg, out: _Out) -> None:
@@ -476,8 +479,15 @@ def _bridge_checks(ctx, s: _Seg, out: _Out) -> None:
             out.pick("bridge-offset", None, [le(off, r.v_il) for r, _ in facing], warn, "V",
                      [f"{r.tap.label} ({sig.upper()})" for r, sig in facing],
                      soft=[r.tap.pin.soft_v_il for r, _ in facing])
-    if offsets:
-        out.truth("bridge-offset-facing", None, len(offsets) < 2)
+    if offsets:  # soft where an offset or a facing side's VIL compared is soft
+        soft = np.asarray(False)
+        for d in offsets[:2]:
+            low = d.part.sides[d.side].low_offset
+            tap = next(t for t in s.lines["sda"].taps if t.dev is d)
+            soft = np.logical_or(soft, np.logical_or(low is not None and low.soft,
+                                                     tap.pin.soft_v_il))
+        out.truth("bridge-offset-facing", None, len(offsets) < 2,
+                  soft=soft if len(offsets) > 1 else False)
 
 
 class _Ctx:

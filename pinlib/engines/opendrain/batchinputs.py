@@ -34,7 +34,9 @@ from pinlib.engines.opendrain.rules import (
     rp_min_of,
     window_open,
 )
+from pinlib.library.loader import off_tolerant_stated
 from pinlib.library.schema import Part
+from pinlib.library.values import SOFT_BASES
 from pinlib.model.design import Bus, Device, Segment
 from pinlib.physics import pullup as pu
 
@@ -107,6 +109,9 @@ class PinData:
     soft_v_il: Any = False
     soft_v_ih: Any = False
     soft_abs_max: Any = False
+    #: whether ``off_tolerant`` (power-off) rests on no firm statement: no file states
+    #: it (the default, false, is taken) or a class's or an estimate's file does
+    soft_off_tolerant: Any = False
 
 
 @value_class
@@ -164,9 +169,19 @@ def soft_flags(pin, taken: dict) -> dict:
     the engine takes of it rests on a soft value: its own, else the specification's in
     ``taken`` (by field; published, but UM10204's VOL1 where its table gives the mode
     no point is an estimate), or ``taken``'s where it names the value taken. [1]"""
-    return {f"soft_{name}": _soft(getattr(pin, name) if getattr(pin, name) is not None
-                                  else taken.get(name))
-            for name in ("i_ol", "v_ol", "v_il", "v_ih", "abs_max")}
+    flags = {f"soft_{name}": _soft(getattr(pin, name) if getattr(pin, name) is not None
+                                   else taken.get(name))
+             for name in ("i_ol", "v_ol", "v_il", "v_ih", "abs_max")}
+    flags["soft_off_tolerant"] = off_tolerant_soft(pin)
+    return flags
+
+
+def off_tolerant_soft(pin) -> bool:
+    """Whether a pin's ``off_tolerant`` rests on no firm statement: no part file states
+    it, or the file that does is a class's or an estimate (:data:`SOFT_BASES`); a plain
+    value in a datasheet's file is firm, as elsewhere. [1]"""
+    stated = off_tolerant_stated(pin)
+    return stated is None or stated[0] in SOFT_BASES
 
 
 def rp_min_rests_on(li, v_max: float) -> list:

@@ -243,11 +243,18 @@ class _Out:
             _column(np.asarray(status, dtype=np.int8), self.n),
             unit))
 
-    def truth(self, id, signal, ok, names=None):
-        """A yes/no check (no value, limit or margin): fails where ``ok`` is False;
-        ``names``: what it is of (one name), as :attr:`BatchCheck.names`."""
-        self.add(id, signal, None, None, None, np.where(np.asarray(ok), 0, 2))
+    def truth(self, id, signal, ok, names=None, soft=False):
+        """A yes/no check (no value, limit or margin): fails where ``ok`` is False, and
+        warns there instead where ``soft`` (a bool or a batch column: what it rests on
+        is a soft value, :func:`pinlib.model.result.soft_limit`; then
+        :attr:`BatchCheck.soft`); ``names``: what it is of (one name), as
+        :attr:`BatchCheck.names`."""
+        soft = np.asarray(soft, dtype=bool)
+        self.add(id, signal, None, None, None,
+                 np.where(np.asarray(ok), 0, np.where(soft, 1, 2)))
         self.checks[-1].names = names
+        if soft.any():
+            self.checks[-1].soft = np.broadcast_to(np.reshape(soft, (-1,)), (self.n,)).copy()
 
 
 def _cells(x) -> list:

@@ -71,7 +71,12 @@ class _Tap:
         return f"{self.dev.ref}{side}"
 
     def source(self, field_name: str) -> str:
-        return value_source(self.dev, f"pins.{self.pin_name}.{field_name}",
+        """Where the pin's ``field_name`` comes from (:func:`value_source`), the field
+        named as the part file writes it: a bridging part's under its side
+        (``sides.b.pins.sda.v_il``)."""
+        side = self.dev.part_side
+        where = f"sides.{side}.pins" if side else "pins"
+        return value_source(self.dev, f"{where}.{self.pin_name}.{field_name}",
                             getattr(self.pin, field_name))
 
 

@@ -37,7 +37,15 @@ from pinlib.engines.opendrain.wording import (
     make,
     row_corner,
 )
-from pinlib.model.result import Group, check_true
+from pinlib.library.loader import off_tolerant_stated
+from pinlib.library.values import SOFT_BASES
+from pinlib.model.result import (
+    STATUSES,
+    Group,
+    check_true,
+    soften,
+    softest,
+)
 
 #: The units of the segment's own figures (the lines' are in ``explain._UNITS``).
 _SEGMENT_UNITS = {"supply": "V", "pullup_resistor": "Ω", "rise_factor": "",
@@ -318,7 +326,7 @@ def _power(w: Words, taps: list) -> None:
     for d in seg_in.segment.devices:
         if not d.switched:
             continue
-        w.take("power-off")
+        bc = w.take("power-off")
         loading = [t for t in taps if t.dev is d and not t.pin.off_tolerant]
         if not loading:
             grp.add(check_true("power-off", True, f"{d.part_id} pins off_tolerant",
@@ -330,10 +338,22 @@ def _power(w: Words, taps: list) -> None:
             sig = "sda" if t.pin.function == SIGNALS["sda"] else "scl"
             currents.append((sig.upper(), (v_max - CLAMP_DROP) / (w.r_eff(sig) * (1 - tol))))
         shown = ", ".join(f"{s} {_f(i, 'A')}" for s, i in currents)
+        stated = [(t, off_tolerant_stated(t.pin)) for t in loading]
+        firm = [(t, st) for t, st in stated if st is not None and st[0] not in SOFT_BASES]
+        unstated = [t for t, st in stated if st is None]
+        clamp = (f"{_COMMON}: input clamp diodes to the device's own rail "
+                 f"({CLAMP_DROP:g} V drop)")
+        if firm or not unstated:  # the statements it rests on: the firm ones, else all
+            said = [_stated_source(d, t, st) for t, st in (firm or stated)]
+        else:
+            said = [M.POWER_OFF_SOURCE_UNSTATED.format(
+                part=d.part_id, fields=", ".join(_off_field(t) for t in unstated))]
+        fields = ", ".join(_off_field(t) for t in unstated)
+        how = ("its pins are not power-off tolerant" if firm or not unstated else
+               M.POWER_OFF_TAKEN.format(part=d.part_id, fields=fields))
         chk = check_true(
-            "power-off", False, f"{_COMMON}: input clamp diodes to the device's own rail "
-            f"({CLAMP_DROP:g} V drop)",
-            f"{d.ref} sits on a switched rail and its pins are not power-off tolerant: with its "
+            "power-off", False, f"{'; '.join(said)}; {clamp}",
+            f"{d.ref} sits on a switched rail and {how}: with its "
             f"rail off, its input clamps hold {' and '.join(s for s, _ in currents)} about "
             f"{CLAMP_DROP:g} V above the dead rail (below every VIL: the bus stops) and the "
             f"pull-ups feed {shown} into it, back-powering its rail", subject=d.ref,
@@ -342,7 +362,33 @@ def _power(w: Words, taps: list) -> None:
                    "while the bus runs, or isolate it behind a bus switch or buffer that "
                    "disconnects when its rail is off")
         chk.message += f"; fix: {chk.fix}"
+        if not firm and unstated:  # nothing states it: the clamps are a rule of thumb
+            chk.status = "warn"
+            chk.details = {**chk.details, "rule_of_thumb": True}
+            chk.message += M.POWER_OFF_UNSTATED
+        elif not firm:  # stated by a class or an estimate
+            soften(chk, softest(st[0] for _, st in stated), what="off_tolerant")
+        if STATUSES.index(chk.status) != bc.status.item(0):
+            raise RuntimeError(f"open-drain wording of power-off {d.ref}: status "
+                               f"{chk.status}, the batch's {STATUSES[bc.status.item(0)]}")
         grp.add(chk)
+
+
+def _off_field(t) -> str:
+    """A pin's ``off_tolerant`` field as its part file writes it (a bridging part's under
+    its side)."""
+    side = t.dev.part_side
+    return f"{f'sides.{side}.pins' if side else 'pins'}.{t.pin_name}.off_tolerant"
+
+
+def _stated_source(d, t, stated) -> str:
+    """Where a pin's stated ``off_tolerant`` comes from: the field, its value, and the
+    file that states it with that file's basis and source."""
+    basis, source, pid = stated
+    where = f" from {pid}" if pid != d.part_id else ""
+    bits = ": ".join(b for b in (basis, source) if b)
+    return (f"{d.part_id} {_off_field(t)} = {str(bool(t.pin.off_tolerant)).lower()}{where}"
+            f" ({bits})")
 
 
 def _bridges(w: Words) -> None:
@@ -368,20 +414,57 @@ def _bridges(w: Words) -> None:
     for d in offsets:
         _offset(w, d)
     if offsets:
-        w.take("bridge-offset-facing")
-        ok = len(offsets) < 2
-        names = ", ".join(f"{d.ref} side {d.side}" for d in offsets)
-        chk = check_true("bridge-offset-facing", ok,
-                         "common practice, no source: a static-offset side reads another's "
-                         "offset low as a driven low",
-                         f"static-offset sides on this segment: {names}" + (
-                             "" if ok else ": each sees the other's offset low as a driven low "
-                             "and holds it — the bus locks low"), subject=offsets[0].ref)
-        if not ok:
-            chk.fix = ("never join two static-offset sides: turn one repeater round or use a "
-                       "repeater without offset on one side")
-            chk.message += f"; {chk.fix}"
-        grp.add(chk)
+        _facing(w, offsets)
+
+
+def _offset_low(w: Words, d):
+    """A static-offset side's low level (its ``low_offset``, None where not stated),
+    its SDA tap and the VIL that side reads with (its pin's, else the
+    specification's): (low, tap, vil), the values as :class:`Sourced`."""
+    tap = next(t for t in w.seg_in.lines["sda"].taps if t.dev is d)
+    vil = tap.pin.v_il if tap.pin.v_il is not None else w.lim.default_levels()[0]
+    return d.part.sides[d.side].low_offset, tap, vil
+
+
+def _facing(w: Words, offsets: list) -> None:
+    """Static-offset sides on one segment: one alone passes; with two, each one's low
+    against the other's input threshold says what goes wrong: a low one does not read
+    does not pass it, and two that read each other's lows hold each other low."""
+    bc = w.take("bridge-offset-facing")
+    names = ", ".join(f"{d.ref} side {d.side}" for d in offsets)
+    msg = f"static-offset sides on this segment: {names}"
+    if len(offsets) < 2:
+        w.grp.add(check_true("bridge-offset-facing", True, f"{_COMMON}: no other static-offset "
+                             "side on this segment to face", msg, subject=offsets[0].ref))
+        return
+    x, y = offsets[0], offsets[1]
+    (lx, tx, vx), (ly, ty, vy) = _offset_low(w, x), _offset_low(w, y)
+    kind = x.part.bridge.kind if x.part.bridge is not None else "bridge"
+    nx, ny = f"{x.ref} side {x.side}", f"{y.ref} side {y.side}"
+    src = M.FACING_SOURCE.format(
+        x=nx, y=ny, offset_source=value_source(x, f"sides.{x.side}.low_offset", lx),
+        vil_source=ty.source("v_il") if ty.pin.v_il is not None else w.lim.source_levels)
+    if lx is None or ly is None:
+        why = M.FACING_UNSTATED.format(x=nx if lx is None else ny,
+                                       side=(x if lx is None else y).side)
+    else:
+        ox, oy = float(lx.at(tx.vdd)), float(ly.at(ty.vdd))
+        ix, iy = float(vx.at(tx.vdd)), float(vy.at(ty.vdd))
+        f = {"x": nx, "y": ny, "off": _f(ox, "V"), "vil": _f(iy, "V"),
+             "off2": _f(oy, "V"), "vil2": _f(ix, "V")}
+        if ox <= iy and oy <= ix:
+            why = M.FACING_LOCK.format(**f)
+        elif ox > iy and oy > ix:
+            why = M.FACING_NEITHER.format(**f)
+        elif ox <= iy:  # y reads x's low, x does not read y's
+            why = M.FACING_ONE_WAY.format(**f)
+        else:
+            why = M.FACING_ONE_WAY.format(x=ny, y=nx, off=f["off2"], vil=f["vil2"],
+                                          off2=f["off"], vil2=f["vil"])
+    chk = check_true("bridge-offset-facing", False, src, f"{msg}: {why}", subject=x.ref)
+    chk.fix = M.FACING_FIX.format(kind=kind)
+    chk.message += f"; {chk.fix}"
+    w.grp.add(firm_or_soft(chk, bc, lx, vx, ly, vy, what="low_offset and VIL"))
 
 
 def _gate_drive(w: Words, link) -> None:
@@ -429,8 +512,15 @@ def _offset(w: Words, d) -> None:
                f"{d.ref} drives side {d.side} low to {off} (static offset) against VIL "
                f"{_f(bc.limit[0], 'V')} of {r.tap.label} ({sig.upper()})", subject=d.ref)
     if chk.status == "fail":
-        chk.fix = (f"every device on the offset side must read {off} as low: "
-                   "replace those with VIL below it, or turn the repeater so its offset "
-                   "side faces devices with VIL = 0.3·VDD at a higher rail")
+        kind = d.part.bridge.kind if d.part.bridge is not None else "bridge"
+        low, spec = float(bc.value[0]), w.lim.default_levels()[0]
+        if w.lim.protocol == "smbus":  # fixed levels: no rail raises a VIL
+            vil = float(spec.at())
+            fix = M.BRIDGE_OFFSET_FIX_SMBUS_HIGH if low > vil else M.BRIDGE_OFFSET_FIX_SMBUS
+            chk.fix = fix.format(offset=off, kind=kind, vil=_f(vil, "V"))
+        else:  # the specification's VIL, a fraction of VDD, reaches the offset at a rail
+            scale = spec.value.scale
+            chk.fix = M.BRIDGE_OFFSET_FIX.format(offset=off, kind=kind, scale=scale,
+                                                 rail=_f(low / scale, "V"))
         chk.message += f"; {chk.fix}"
     w.grp.add(firm_or_soft(chk, bc, r.v_il_value, what="VIL"))

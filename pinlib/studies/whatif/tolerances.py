@@ -61,6 +61,12 @@ def _where(bus: Bus, seg: Segment) -> str:
     return bus.id if len(bus.segments) == 1 else f"{bus.id}/{seg.id}"
 
 
+def _who(d) -> str:
+    """A device as a parameter's name gives it: a bridging part by its side too (its two
+    sides sit on different segments, each with its own pins: "M1 side a"). [1]"""
+    return f"{d.ref} side {d.side}" if d.side else d.ref
+
+
 def _bus_parameters(bus: Bus, seg_ins, refs_on_buses: dict) -> list[Parameter]:
     out: list[Parameter] = []
     for seg, sin in zip(bus.segments, seg_ins, strict=True):
@@ -81,19 +87,19 @@ def _bus_parameters(bus: Bus, seg_ins, refs_on_buses: dict) -> list[Parameter]:
                     got = d.part.pin_for(fn, d.side)
                     if got is None:
                         continue
-                    pin = got[1]
+                    pin, who = got[1], _who(d)
                     for what, value in (("on-part", pin.pullup), ("internal", pin.pullup_internal
                                         if d.internal_pullups else None)):
                         if value is None:
                             continue
-                        out.append(Parameter(f"{d.ref} {sig.upper()} {what} pull-up", "pullup",
+                        out.append(Parameter(f"{who} {sig.upper()} {what} pull-up", "pullup",
                                              float(value.value), tol, "Ω",
                                              ("part-pullup", bus.id, seg.id, sig, k)))
                         k += 1
                 for d in seg.devices:
                     got = d.part.pin_for(fn, d.side)
                     if d.series_resistor and got is not None and got[1].drive == "open-drain":
-                        out.append(Parameter(f"{d.ref} {sig.upper()} series resistor", "series",
+                        out.append(Parameter(f"{_who(d)} {sig.upper()} series resistor", "series",
                                              d.series_resistor, tol, "Ω",
                                              ("series", bus.id, seg.id, d.ref, d.side, sig)))
         for d in seg.devices:
