@@ -13,6 +13,8 @@ from __future__ import annotations
 
 import reprlib
 
+from pinlib.core.labels import plural_s
+
 __all__ = [
     "cut",
     "PinlibError",
@@ -171,7 +173,7 @@ def _echo(value: object) -> str:
         shown = ", ".join(keys[:6]) + (", …" if len(keys) > 6 else "")
         return f"a table ({shown})" if keys else "an empty table"
     if isinstance(value, (list, tuple)) and value and all(isinstance(v, dict) for v in value):
-        return f"an array of {len(value):,} table{'' if len(value) == 1 else 's'}"
+        return f"an array of {len(value):,} table{plural_s(len(value))}"
     if isinstance(value, (list, tuple, dict, set)):
         if len(value) > ECHO_LIMIT:
             return f"a {type(value).__name__} of {len(value):,} items"

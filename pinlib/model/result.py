@@ -14,6 +14,7 @@ from dataclasses import field
 from typing import Any
 
 from pinlib.core import messages as M
+from pinlib.core.labels import plural_s
 from pinlib.core.valueclass import value_class
 
 __all__ = [
@@ -447,7 +448,7 @@ SOFT_TAGS = {"generic": " (a class's typical value)", "estimate": " (an estimate
 
 def _modes_text(modes) -> str:
     modes = sorted(int(m) for m in modes)
-    return f"mode{'' if len(modes) == 1 else 's'} {', '.join(map(str, modes))}"
+    return f"mode{plural_s(len(modes))} {', '.join(map(str, modes))}"
 
 
 #: A yes/no check whose details say what was held against what: its value and limit
