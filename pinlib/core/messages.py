@@ -683,6 +683,19 @@ SINK_OWN_RAIL_LOW = ", its own {vdd} rail at its minimum"
 # rests on a soft one: it fails against the firm bound
 WINDOW_BELOW_FIRM = ("; below {limit}, Rp(min) of {driver}'s sink point ({basis}), a firm "
                      "limit")
+# pinlib/engines/opendrain/wording.py: rise-time and fall-time of a line joined to another
+# segment through a pass-transistor translator while the transistor conducts
+EDGE_JOINED = ("joined through {via} with segment {far} below {v_join} (side a's rail less "
+               "VGS(th)): Cb {cb} + {cb_far}, its pull-up {rp_far} too")
+# ...: the reason of a fall-time check whose joined line never reaches its end level
+FALL_JOINED_NEVER = ("{up} never falls to {v_lo}, where its fall time ends: {via} conducts "
+                     "only below {v_join}, and there the driver's guaranteed sink cannot "
+                     "carry both segments' pull-ups down that far")
+# ...: the fix of a failing fall time of a joined line
+FALL_JOINED_FIX = ("; or, across {via}, less capacitance on either segment or a MOSFET with "
+                   "a lower gate threshold (it joins them sooner)")
+# ...: the rise of such a line above the join level
+RISE_ALONE_ABOVE = "; alone above it"
 # pinlib/engines/opendrain/wording_segment.py: setup-time where the data valid time taken
 # is a part's soft value (its limit, tSU;DAT, is the specification's: the check stays firm)
 SETUP_SOFT_VALID = ("; {which} {value} is {kind} (the limit is firm: the specification's "

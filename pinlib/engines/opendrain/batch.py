@@ -37,7 +37,13 @@ from collections.abc import Sequence
 import numpy as np
 
 from pinlib.core.errors import DesignError, InputError
-from pinlib.engines.opendrain.arith import fall_bounds, far_drivers, low_levels
+from pinlib.engines.opendrain.arith import (
+    Join,
+    fall_bounds,
+    far_drivers,
+    joined_rise,
+    low_levels,
+)
 from pinlib.engines.opendrain.batchfigures import _figures, _reduce, one
 from pinlib.engines.opendrain.batchgathered import line_from
 from pinlib.engines.opendrain.batchinputs import (
@@ -116,6 +122,27 @@ def _far(s: _Seg, segs: list[_Seg], links: list[_Link], signal: str):
             if link.kind == "mosfet"]
 
 
+def _joins(ctx, s: _Seg, signal: str) -> list[Join]:
+    """The line's partner across each pass-transistor translator (:class:`.arith.Join`):
+    the far line's pull-up, capacitance and rail, and the level below which the
+    transistor conducts: the rail of the part's side ``a`` (its gate's) less its
+    threshold (``v_gs_th``; 0 V where the part states none)."""
+    out = []
+    for link in ctx.links[s.index]:
+        if link.kind != "mosfet":
+            continue
+        o = ctx.segs[link.other]
+        fl = o.lines[signal]
+        r = o.r_eff(signal)
+        here_a = link.dev.part_side == "a"
+        br = link.dev.part.bridge
+        v_th = float(br.v_gs_th.value) if br is not None and br.v_gs_th is not None else 0.0
+        out.append(Join(link, r * (1 - o.tol), r * (1 + o.tol), fl.cb,
+                        fl.cb if fl.cb_low is None else fl.cb_low, o.v,
+                        (s if here_a else o).v - v_th, here_a))
+    return out
+
+
 def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     lim, v, tol, up = ctx.lim, s.v, s.tol, ln.signal.upper()
     warn = ctx.warn
@@ -147,19 +174,28 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
         soft = [np.logical_and(low, ln.soft_min), False]
         rows.append(ge(rp_lo, ln.rp_min_firm))
     out.pick("pullup-window", up, rows, warn, "Ω", soft=soft).basis = (m_lo, m_hi)
-    tr = phys.rise_time(rp_hi, ln.cb, ln.rise_factor)
-    f["rise_time"] = tr
-    f["rise_time_10_90"] = phys.rise_time(rp_hi, ln.cb, RISE_10_90)
+    joins = _joins(ctx, s, ln.signal) if far else []
+    join = Join.merged(joins)
+    if join is None:
+        tr = phys.rise_time(rp_hi, ln.cb, ln.rise_factor)
+        f["rise_time_10_90"] = phys.rise_time(rp_hi, ln.cb, RISE_10_90)
+    else:  # joined while the pass transistor conducts: the check at each rail corner
+        tr = joined_rise(join, rp_hi, ln.cb, v, *ctx.lim.measuring_levels(v))
+        f["rise_time_10_90"] = _worst_max(joined_rise(join, rp_hi, ln.cb, v, 0.1 * v,
+                                                      0.9 * v))
+    f["rise_time"] = tr if join is None else _worst_max(tr)
     # a line its pins' leakage holds below the rise's upper level never completes the
     # rise (at either rail corner): it has no rise time (infinite), and the check fails
     # with the reason
     voh = phys.high_level(v, rp_hi, ln.leakage)  # the high level: the v-oh checks' too
     reached = np.all(voh >= lim.measuring_levels(v)[1], axis=-1, keepdims=True)
-    out.pick("rise-time", up, [le(np.where(reached, tr, np.inf), lim.tr_max)], warn, "s")
+    rc = out.pick("rise-time", up, [le(np.where(reached, tr, np.inf), lim.tr_max)], warn, "s")
+    rc.basis = join  # the wording names the joined line (None: the line alone)
     tr_min = lim.tr_min(np.asarray(v, dtype=float))
     if tr_min is not None:  # the fastest rise: the pull-up and Cb at their low ends
-        out.pick("rise-time-min", up, [ge(phys.rise_time(rp_lo, ln.cb_low, ln.rise_factor),
-                                          tr_min)], warn, "s")
+        fast = (phys.rise_time(rp_lo, ln.cb_low, ln.rise_factor) if join is None else
+                joined_rise(join, rp_lo, ln.cb_low, v, *lim.measuring_levels(v), fast=True))
+        out.pick("rise-time-min", up, [ge(fast, tr_min)], warn, "s")
     # -- low levels
     raw, offset_levels, plain = low_levels(v, rp_lo, ln.drivers, far, ctx.segs, ln.signal,
                                            phys)
@@ -209,7 +245,7 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             limit = lim.v_nh_rel * v
             nh = out.pick("noise-margin-high", up, [ge(nmh, limit)], warn, "V")
             f["noise_margin_high"] = lambda: nh.value[:, None]  # as noise_margin_low
-    _fall_checks(ctx, s.index, ln, out, f, rp_lo, v, far, phys)
+    _fall_checks(ctx, s.index, ln, out, f, rp_lo, v, far, phys, joins)
 
 
 def _in_domain(ctx, ln: _Line, v, rp_lo, rp_hi, far) -> bool:
@@ -324,10 +360,12 @@ def _index(items: list, x) -> int:
 
 
 def _fall_checks(ctx, s_index: int, ln: _Line, out: _Out, f: dict, rp_lo, v, far,
-                 phys) -> None:
-    """Fall time (each driver's upper bound, the worst named) and tf(min)."""
+                 phys, joins=None) -> None:
+    """Fall time (each driver's upper bound, the worst named; joined across pass
+    transistors, ``joins``) and tf(min)."""
     lim, warn, up = ctx.lim, ctx.warn, ln.signal.upper()
-    bounds = fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far, ctx.segs, ln.signal, phys)
+    bounds = fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far, ctx.segs, ln.signal, phys,
+                         joins)
     f["fall_time"] = None
     if not bounds:
         return

@@ -12,6 +12,8 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 from pinlib.core import messages as M
 from pinlib.core.labels import and_list, few_named
 from pinlib.engines.opendrain.arith import BY_PART, far_drivers
@@ -157,9 +159,15 @@ def line(w: Words, ln: LineInputs) -> None:
     grp.add(_window(w, ln, r_eff, rp_lo))
     defin = ("30–70 %" if lim.rise_definition == "30-70" else "SMBus points 0.65 V–1.50 V")
     bc = w.take("rise-time")
-    basis = (f"{defin}, Rp {_f(rp_hi, 'Ω')} at +{_f(tol, '%')}, Cb {_f(ln.cb, 'F')}, factor "
-             f"{ln.rise_factor:.4g}")
     details = {"definition": lim.rise_definition, "factor": ln.rise_factor}
+    if bc.basis is None:
+        basis = (f"{defin}, Rp {_f(rp_hi, 'Ω')} at +{_f(tol, '%')}, Cb {_f(ln.cb, 'F')}, "
+                 f"factor {ln.rise_factor:.4g}")
+    else:  # joined through pass transistors while they conduct (batch.Join)
+        text, details["joined"] = joined_words(w, bc.basis, row_corner(bc)[1], ln.cb,
+                                               bc.basis.rp_hi)
+        basis = (f"{defin}, Rp {_f(rp_hi, 'Ω')} at +{_f(tol, '%')}; {text}"
+                 f"{M.RISE_ALONE_ABOVE}")
     if math.isfinite(bc.value[0]):
         grp.add(make(bc, lim.source_edges, f"{up} rise time {_f(bc.value[0], 's')} ({basis})",
                      subject=up, details=details))
@@ -492,14 +500,21 @@ def _fall(w: Words, ln: LineInputs, far: list) -> None:
     text, details = fall_basis(lim, d, info, c, ln.cb)
     basis = (f"driver {d.tap.label}{via}: {text}; pull-up at −{_f(tol, '%')}, Cb {_f(ln.cb, 'F')}, "
              f"{_CORNERS[c]}")
+    join = info.get("join")
+    if join is not None:  # the sink discharges both lines while the transistor conducts
+        text, details["joined"] = joined_words(w, join, c, ln.cb, join.rp_lo)
+        basis += f"; {text}"
     if math.isfinite(bc.value[0]):
         chk = make(bc, lim.source_edges, f"{up} fall time at most {_f(bc.value[0], 's')} "
                    f"({basis})", subject=up, details=details)
     else:  # the bound is infinite: the line never reaches the fall's lower level
-        chk = _never_falls(w, bc, up, basis, c, details)
+        chk = _never_falls(w, bc, up, basis, c, details, details.get("joined"))
     if chk.status == "fail":
         _failed(chk, "a stronger sink, a larger pull-up (inside its window), less bus "
                      "capacitance, or a part that states its output fall time (t_of_max)")
+        if join is not None:
+            chk.fix += M.FALL_JOINED_FIX.format(via=and_list(details["joined"]["via"]))
+            chk.message += M.FALL_JOINED_FIX.format(via=and_list(details["joined"]["via"]))
     w.grp.add(chk)
     tf_min = lim.tf_min(float(seg_in.vdd[1]))
     if tf_min is None:
@@ -522,17 +537,43 @@ def _fall(w: Words, ln: LineInputs, far: list) -> None:
                  f"{up}: " + ", ".join(missing))
 
 
-def _never_falls(w: Words, bc, up: str, basis: str, c: int, details: dict) -> Check:
+def _never_falls(w: Words, bc, up: str, basis: str, c: int, details: dict,
+                 joined: dict | None = None) -> Check:
     """The fall-time check where its bound is infinite: the driver's guaranteed sink
-    cannot pull the line through the fall's lower measuring level against the pull-up,
-    so the line never falls and has no fall time (failed, with the reason)."""
+    cannot pull the line through the fall's lower measuring level against the pull-up
+    (``joined``: against both segments' pull-ups, below the level where the pass
+    transistor conducts), so the line never falls and has no fall time (failed, with
+    the reason)."""
     v_lo = float(w.lim.fall_levels(float(w.seg_in.vdd[c]))[0])
-    reason = (f"{up} never falls to {_f(v_lo, 'V')}, where its fall time ends: against the "
-              "pull-up the driver's guaranteed sink cannot pull the line that low")
+    if joined is None:
+        reason = (f"{up} never falls to {_f(v_lo, 'V')}, where its fall time ends: against "
+                  "the pull-up the driver's guaranteed sink cannot pull the line that low")
+    else:
+        reason = M.FALL_JOINED_NEVER.format(up=up, v_lo=_f(v_lo, "V"),
+                                            via=and_list(joined["via"]),
+                                            v_join=_f(joined["v_join"], "V"))
     chk = make(bc, w.lim.source_edges, f"{up} has no fall time: {reason} ({basis})",
                subject=up, details=details, reason=reason)
     chk.margin = None
     return chk
+
+
+def joined_words(w: Words, join, c: int, cb: float, rp_far) -> tuple[str, dict]:
+    """The words and details of a line joined through pass transistors (an
+    :class:`.arith.Join` at corner ``c``; ``rp_far`` the far pull-up at the end the check
+    took)."""
+    links = join.links or [join.link]
+    segs = w.ctx.collected
+    v_join = np.asarray(join.v_join, dtype=float).reshape(-1)
+    v_join = float(v_join[c] if v_join.size > 1 else v_join[0])
+    vals = {"via": and_list([ln.dev.ref for ln in links]),
+            "far": and_list([segs[ln.other].segment.id for ln in links]),
+            "v_join": _f(v_join, "V"), "cb": _f(cb, "F"), "cb_far": _f(one(join.cb), "F"),
+            "rp_far": _f(one(rp_far), "Ω")}
+    details = {"via": [ln.dev.ref for ln in links],
+               "segments": [segs[ln.other].segment.id for ln in links],
+               "v_join": v_join, "cb_far": one(join.cb), "rp_far": one(rp_far)}
+    return M.EDGE_JOINED.format(**vals), details
 
 
 def fall_basis(lim, d, info: dict, c: int, cb: float) -> tuple[str, dict]:
