@@ -261,10 +261,20 @@ def fall_bounds(lim, rp_lo, cb, v, drivers, far, segs, signal: str, phys=pu,
         else:  # this line is side b: held at its rail until the transistor turns on
             t_sink = far_fall_time(join.rp_lo, join.cb, join.v, rp_lo, cb, v, join.v_join,
                                    d.v_ol, d.i_ol, v_hi, v_lo, r_s)
+        if d.offset is not None and link is None:
+            # a static-offset side holds its low at its offset (higher where the pull-up
+            # draws more than its IOL): an end level at or below that is never reached
+            held = np.asarray(pu.held_low_level(
+                np.broadcast_to(d.offset, np.broadcast_shapes(np.shape(d.offset),
+                                                              np.shape(v))),
+                v, rp_lo, d.i_ol), dtype=float)
+            t_sink = np.where(held >= v_lo, np.inf, t_sink)
         # a compliant stage's tof holds for the load it drives: both lines' capacitance
         load = cb if join is None or link is not None else cb + join.cb
         t_of, kind, why = output_fall(lim, d, load, v, link, rp_lo, mode)
         t = t_sink if t_of is None else np.minimum(t_sink, t_of)
         out.append((t, d, link, {"t_sink": t_sink, "t_of": t_of, "kind": kind, "why": why,
-                                 "join": join}))
+                                 "join": join,
+                                 "offset": held if d.offset is not None and link is None
+                                 else None}))
     return out

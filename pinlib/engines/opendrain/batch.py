@@ -200,7 +200,21 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     raw, offset_levels, plain = low_levels(v, rp_lo, ln.drivers, far, ctx.segs, ln.signal,
                                            phys)
     levels = [(vb, i, d if link is None else None) for vb, i, d, link in raw]
-    f["v_ol"] = None
+    # a low driven by a static-offset side sits at its offset (held higher where the
+    # pull-up draws more than its IOL): the bus's low level there, which the pins other
+    # than the offset side's own read (bridge-offset checks each against it)
+    vol_off = nml_off = None
+    if offset_levels:
+        vol_off = _reduce(np.max, [np.asarray(pu.held_low_level(
+            np.broadcast_to(vb, np.broadcast_shapes(np.shape(vb), np.shape(v))), v, rp_lo,
+            d.i_ol), dtype=float) for vb, _, d in offset_levels])
+        own = {d.tap.dev.ref for _, _, d in offset_levels}
+        others = [r.v_il for r in ln.receivers if r.tap.dev.ref not in own]
+        if others:
+            nml_off = _reduce(np.min, others) - vol_off
+    f["v_ol"] = None if vol_off is None else _worst_max(vol_off)
+    f["noise_margin_low"] = None if nml_off is None else np.min(nml_off, axis=-1,
+                                                                 keepdims=True)
     if levels:
         shapes = {lv[0].shape for lv in levels}
         if len(shapes) == 1:  # the usual case: no broadcasting needed
@@ -209,7 +223,7 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             shape = np.broadcast_shapes(*shapes)
             stacked = np.stack([np.broadcast_to(lv[0], shape) for lv in levels])
         vol_bus = np.max(stacked, axis=0)
-        f["v_ol"] = _worst_max(vol_bus)
+        f["v_ol"] = _worst_max(vol_bus if vol_off is None else np.maximum(vol_bus, vol_off))
         if ln.receivers:
             chk = out.pick("v-ol", up, [le(vol_bus, r.v_il) for r in ln.receivers], warn, "V",
                            [r.tap.label for r in ln.receivers], per_row=True,
@@ -219,6 +233,8 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             out.after(lambda: _driver_behind(chk, stacked, ctx.n, behind))
             vil_min = _reduce(np.min, [r.v_il for r in ln.receivers])
             nml = vil_min - vol_bus
+            if nml_off is not None:  # the offset side's low, read by the other pins
+                nml = np.minimum(nml, nml_off)
             f["noise_margin_low"] = np.min(nml, axis=-1, keepdims=True)
             if lim.v_nl_rel is not None:
                 limit = lim.v_nl_rel * v
@@ -488,6 +504,8 @@ def _bridge_checks(ctx, s: _Seg, out: _Out) -> None:
         d = link.dev
         if link.kind == "mosfet":
             other = ctx.segs[link.other]
+            if d.part_side == "a":  # its gate and source side on the lower rail (or equal)
+                out.truth("bridge-gate-side", None, seg.supply <= other.seg.supply, (d.ref,))
             if seg.supply > other.seg.supply:
                 continue
             br = d.part.bridge

@@ -504,12 +504,21 @@ def _fall(w: Words, ln: LineInputs, far: list) -> None:
     if join is not None:  # the sink discharges both lines while the transistor conducts
         text, details["joined"] = joined_words(w, join, c, ln.cb, join.rp_lo)
         basis += f"; {text}"
+    offset = info.get("offset")
     if math.isfinite(bc.value[0]):
         chk = make(bc, lim.source_edges, f"{up} fall time at most {_f(bc.value[0], 's')} "
                    f"({basis})", subject=up, details=details)
     else:  # the bound is infinite: the line never reaches the fall's lower level
-        chk = _never_falls(w, bc, up, basis, c, details, details.get("joined"))
-    if chk.status == "fail":
+        if offset is not None:  # a static-offset side: its low sits at the offset
+            off = np.asarray(offset, dtype=float).reshape(-1)
+            details["offset_level"] = float(off[c] if off.size > 1 else off[0])
+        chk = _never_falls(w, bc, up, basis, c, details, details.get("joined"),
+                           (d.tap.label, details["offset_level"]) if offset is not None
+                           else None)
+    if chk.status == "fail" and chk.value is None and offset is not None:
+        v_lo = float(lim.fall_levels(float(seg_in.vdd[c]))[0])
+        _failed(chk, M.FALL_OFFSET_FIX.format(v_lo=_f(v_lo, "V")))
+    elif chk.status == "fail":
         _failed(chk, "a stronger sink, a larger pull-up (inside its window), less bus "
                      "capacitance, or a part that states its output fall time (t_of_max)")
         if join is not None:
@@ -538,14 +547,17 @@ def _fall(w: Words, ln: LineInputs, far: list) -> None:
 
 
 def _never_falls(w: Words, bc, up: str, basis: str, c: int, details: dict,
-                 joined: dict | None = None) -> Check:
+                 joined: dict | None = None, offset: tuple | None = None) -> Check:
     """The fall-time check where its bound is infinite: the driver's guaranteed sink
     cannot pull the line through the fall's lower measuring level against the pull-up
     (``joined``: against both segments' pull-ups, below the level where the pass
-    transistor conducts), so the line never falls and has no fall time (failed, with
-    the reason)."""
+    transistor conducts; ``offset``: a static-offset side's low sits at or above it), so
+    the line never falls and has no fall time (failed, with the reason)."""
     v_lo = float(w.lim.fall_levels(float(w.seg_in.vdd[c]))[0])
-    if joined is None:
+    if offset is not None:  # (driver, the level its static offset holds the line at)
+        reason = M.FALL_OFFSET_NEVER.format(up=up, v_lo=_f(v_lo, "V"), driver=offset[0],
+                                            level=_f(offset[1], "V"))
+    elif joined is None:
         reason = (f"{up} never falls to {_f(v_lo, 'V')}, where its fall time ends: against "
                   "the pull-up the driver's guaranteed sink cannot pull the line that low")
     else:
