@@ -187,8 +187,8 @@ def test_a_fall_end_below_the_offset_is_never_reached(tmp_path, offset):
         chk = _fall(hot, signal)
         assert chk.status == "fail" and chk.value is None and chk.margin is None
         assert chk.reason and "never falls to 650 mV" in chk.reason
-        assert f"holds its low at {offset.replace('0.72 V', '720 mV').replace('0.85 V', '850 mV')}" \
-            in chk.reason
+        shown = {"0.72 V": "720 mV", "0.85 V": "850 mV"}[offset]
+        assert f"holds its low at {shown}" in chk.reason
         assert chk.fix == M.FALL_OFFSET_FIX.format(v_lo="650 mV")
 
 

@@ -702,6 +702,11 @@ FALL_OFFSET_FIX = ("a bridging part whose offset low sits below {v_lo}, or this 
 # ...: the fix of a failing fall time of a joined line
 FALL_JOINED_FIX = ("; or, across {via}, less capacitance on either segment or a MOSFET with "
                    "a lower gate threshold (it joins them sooner)")
+# ...: a fall of a joined line that fails only with the translator's threshold at its
+# soft (a class's typical, an estimated) maximum and passes at its typical value
+FALL_JOINED_SOFT = (" (it fails only with {ref}'s gate threshold VGS(th) at {vth}, {basis}; "
+                    "at its typical {typ} it passes: a warning, not a failure; recording "
+                    "{ref}'s VGS(th) makes it firm)")
 # ...: the rise of such a line above the join level
 RISE_ALONE_ABOVE = "; alone above it"
 # pinlib/engines/opendrain/wording_segment.py: bridge-gate-side, a pass-transistor

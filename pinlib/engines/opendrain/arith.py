@@ -36,6 +36,10 @@ class Join:
     v_join: Any
     far_is_b: bool
     links: list | None = None  # every link merged (None: ``link`` alone)
+    #: the join level at the part's typical threshold, where its threshold is a soft
+    #: value (a class's typical maximum, an estimate) and it states a typical one; None
+    #: otherwise (a fall that fails at the stated threshold then fails firm)
+    v_join_typ: Any = None
 
     @staticmethod
     def merged(joins: list) -> Join | None:
@@ -205,6 +209,18 @@ def output_fall(lim, d, cb, v, link, rp_lo, mode=None):
     return np.where(ok, t, np.inf), kind, why
 
 
+def _across(join: Join, rp_lo, cb, v, d, v_hi, v_lo, r_s, v_join):
+    """The fall of this line pulled low by driver ``d`` across the translator of
+    ``join`` (the driver's segment), joined below ``v_join``: on side a the sink's
+    line's own between this line's levels (the body diode lets it follow early, never
+    below), on side b held at its rail until the transistor opens. [s]"""
+    if join.far_is_b:  # this line is side a
+        return joined_fall_time(join.rp_lo, join.cb, join.v, rp_lo, cb, v, v_join, d.v_ol,
+                                d.i_ol, np.minimum(v_hi, join.v), v_lo, r_s)
+    return far_fall_time(join.rp_lo, join.cb, join.v, rp_lo, cb, v, v_join, d.v_ol, d.i_ol,
+                         v_hi, v_lo, r_s)
+
+
 def mode_fall(lim, v) -> tuple:
     """The mode's output fall guarantee (``lim.output_fall()``) and a function giving its
     sink point at the rail ``v`` (``lim.sink_point(v)``, worked out once when first
@@ -255,12 +271,8 @@ def fall_bounds(lim, rp_lo, cb, v, drivers, far, segs, signal: str, phys=pu,
         elif link is None:  # this line's sink pulls both lines
             t_sink = joined_fall_time(rp_lo, cb, v, join.rp_lo, join.cb, join.v,
                                       join.v_join, d.v_ol, d.i_ol, v_hi, v_lo, r_s)
-        elif join.far_is_b:  # this line is side a: the near line's bound between its levels
-            t_sink = joined_fall_time(join.rp_lo, join.cb, join.v, rp_lo, cb, v, join.v_join,
-                                      d.v_ol, d.i_ol, np.minimum(v_hi, join.v), v_lo, r_s)
-        else:  # this line is side b: held at its rail until the transistor turns on
-            t_sink = far_fall_time(join.rp_lo, join.cb, join.v, rp_lo, cb, v, join.v_join,
-                                   d.v_ol, d.i_ol, v_hi, v_lo, r_s)
+        else:
+            t_sink = _across(join, rp_lo, cb, v, d, v_hi, v_lo, r_s, join.v_join)
         if d.offset is not None and link is None:
             # a static-offset side holds its low at its offset (higher where the pull-up
             # draws more than its IOL): an end level at or below that is never reached
@@ -273,8 +285,17 @@ def fall_bounds(lim, rp_lo, cb, v, drivers, far, segs, signal: str, phys=pu,
         load = cb if join is None or link is not None else cb + join.cb
         t_of, kind, why = output_fall(lim, d, load, v, link, rp_lo, mode)
         t = t_sink if t_of is None else np.minimum(t_sink, t_of)
+        # at the part's typical threshold, where its stated one is soft: a fall that fails
+        # only at the soft maximum rests on it (it warns, batch._fall_checks)
+        t_typ = None
+        if join is not None and join.v_join_typ is not None:
+            t_typ = (joined_fall_time(rp_lo, cb, v, join.rp_lo, join.cb, join.v,
+                                      join.v_join_typ, d.v_ol, d.i_ol, v_hi, v_lo, r_s)
+                     if link is None else
+                     _across(join, rp_lo, cb, v, d, v_hi, v_lo, r_s, join.v_join_typ))
+            t_typ = t_typ if t_of is None else np.minimum(t_typ, t_of)
         out.append((t, d, link, {"t_sink": t_sink, "t_of": t_of, "kind": kind, "why": why,
-                                 "join": join,
+                                 "join": join, "t_typ": t_typ,
                                  "offset": held if d.offset is not None and link is None
                                  else None}))
     return out

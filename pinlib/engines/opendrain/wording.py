@@ -23,7 +23,7 @@ from pinlib.engines.opendrain.bridges import overdrive
 from pinlib.engines.opendrain.explain import SINK_MODEL, window_advice
 from pinlib.engines.opendrain.inputs import LineInputs, SegmentInputs, _default, _f
 from pinlib.engines.opendrain.rules import _CORNERS, GATE_OVERDRIVE
-from pinlib.model.result import STATUSES, Check, Group, soft_limit
+from pinlib.model.result import STATUSES, Check, Group, soft_basis, soft_limit
 from pinlib.physics.pullup import rise_time_with_leakage
 
 
@@ -524,6 +524,8 @@ def _fall(w: Words, ln: LineInputs, far: list) -> None:
         if join is not None:
             chk.fix += M.FALL_JOINED_FIX.format(via=and_list(details["joined"]["via"]))
             chk.message += M.FALL_JOINED_FIX.format(via=and_list(details["joined"]["via"]))
+    if bc.soft is not None and bool(bc.soft[0]) and join is not None:
+        _soft_threshold(chk, bc, join)
     w.grp.add(chk)
     tf_min = lim.tf_min(float(seg_in.vdd[1]))
     if tf_min is None:
@@ -568,6 +570,23 @@ def _never_falls(w: Words, bc, up: str, basis: str, c: int, details: dict,
                subject=up, details=details, reason=reason)
     chk.margin = None
     return chk
+
+
+def _soft_threshold(chk: Check, bc, join) -> None:
+    """A joined fall that fails only with the translator's soft threshold maximum (the
+    batch held it at a warning): it warns, saying so (the array paths read
+    ``details.limit_basis``, as for a soft limit)."""
+    th = join.link.dev.part.bridge.v_gs_th
+    basis = soft_basis(th)
+    chk.details = {**chk.details, "limit_basis": basis}
+    if chk.status == "fail":
+        chk.status = "warn"
+        chk.message += M.FALL_JOINED_SOFT.format(
+            ref=join.link.dev.ref, vth=_f(float(th.value), "V"), typ=_f(float(th.typ), "V"),
+            basis="a class's typical value" if basis == "generic" else "an estimate")
+    if STATUSES.index(chk.status) != bc.status.item(0):
+        raise RuntimeError(f"open-drain wording of {chk.id} {chk.subject}: status "
+                           f"{chk.status}, the batch's {STATUSES[bc.status.item(0)]}")
 
 
 def joined_words(w: Words, join, c: int, cb: float, rp_far) -> tuple[str, dict]:
