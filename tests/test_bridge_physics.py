@@ -207,3 +207,76 @@ def test_an_offset_below_the_fall_end_keeps_its_fall_time(tmp_path):
     chk = _fall(hot, "SCL")
     assert chk.status == "pass" and chk.value is not None and chk.value > 0
     assert hot.figures["v_ol"].value == pytest.approx(0.5, abs=1e-12)
+
+
+# --------------------------------------------------------------------------- gate threshold
+
+#: A 1.8 V sensor behind a two-MOSFET translator on a 3.3 V bus (invented test data, as
+#: the demo's sensor bus): the gate's 1.71 V at the rail's minimum less VGS(th) 1.5 V
+#: joins the lines only below 0.21 V, where the sensor's sink (2 mA at its VOL, VOL/IOL
+#: below) cannot carry both pull-ups; at the typical 1.0 V it can
+SENSOR = """format = "pinlib.design/1"
+title = "1.8 V sensor behind a MOSFET translator (invented test data)"
+LIBRARY
+[[bus]]
+id = "s"
+protocol = "i2c"
+mode = "fast"
+
+[[bus.segment]]
+id = "main-3v3"
+supply = "3.3 V"
+supply_tolerance = "5 %"
+pullup = "2.7 kΩ"
+extra_capacitance = "80 pF"
+devices = [
+  { ref = "U1", part = "mcu-3v3", role = "controller" },
+  { ref = "Q1", part = "PART", side = "b" },
+]
+
+[[bus.segment]]
+id = "sensor-1v8"
+supply = "1.8 V"
+supply_tolerance = "5 %"
+pullup = "3.3 kΩ"
+devices = [
+  { ref = "Q1", part = "PART", side = "a" },
+  { ref = "U9", part = "temp-humidity-sensor" },
+]
+"""
+
+
+def _sensor_fall(tmp_path, datasheet: bool):
+    text = SENSOR.replace("PART", "level-translator-mosfet").replace("LIBRARY", "")
+    if datasheet:  # the library part with its threshold recorded from a datasheet
+        from pinlib.library.loader import BUILTIN_DIR
+        src = (BUILTIN_DIR / "translator" / "level-translator-mosfet.toml").read_text(
+            encoding="utf-8")
+        (tmp_path / "parts").mkdir()
+        (tmp_path / "parts" / "t-fet-recorded.toml").write_text(
+            src.replace('id = "level-translator-mosfet"', 'id = "t-fet-recorded"').replace(
+                'v_gs_th = { value = "1.5 V", typ = "1.0 V", source',
+                'v_gs_th = { value = "1.5 V", typ = "1.0 V", basis = "datasheet", source'),
+            encoding="utf-8")
+        text = SENSOR.replace("PART", "t-fet-recorded").replace(
+            "LIBRARY", f'library = ["{tmp_path / "parts"}"]\n')
+    path = tmp_path / "d.toml"
+    path.write_text(text, encoding="utf-8")
+    d = load_design(path)
+    main = opendrain.evaluate_bus(d.buses[0], d).segments[0]
+    return _fall(main, "SDA")
+
+
+def test_a_joined_fall_failing_only_at_a_class_threshold_warns(tmp_path):
+    chk = _sensor_fall(tmp_path, datasheet=False)
+    assert chk.status == "warn" and chk.value is None and "U9 via Q1" in chk.message
+    assert "Q1 conducts only below 210 mV" in chk.reason
+    assert chk.details["value_basis"] == "generic"
+    assert M.FALL_JOINED_SOFT.format(ref="Q1", vth="1.5 V", basis="a class's typical value",
+                                     typ="1 V") in chk.message
+
+
+def test_a_joined_fall_failing_at_a_recorded_threshold_fails(tmp_path):
+    chk = _sensor_fall(tmp_path, datasheet=True)
+    assert chk.status == "fail" and chk.value is None
+    assert "value_basis" not in chk.details

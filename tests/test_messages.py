@@ -901,12 +901,19 @@ def _(env):
 
 
 @case("STATUS_SET_ELSEWHERE", M.STATUS_SET_ELSEWHERE.format(
-    status="WARN", check="sensors sensor-1v8 Translator gate drive", ref="U4"))
+    status="WARN", check="x low Translator gate drive", ref="U3"))
 def _(env):
-    from pinlib.studies.candidates import rank_candidates
+    # a 1.8 V sensor behind the test translator (VGS(th) 1.2 V, invented test data): its
+    # gate drive, 1.71 V − 1.2 V, warns for every part at U3 (tests/test_opendrain.py).
+    # The demo's U4 was the case until its sensor bus's joined fall warned there too.
+    from test_opendrain import HEAD as OD_HEAD
+    from test_opendrain import PARTS as OD_PARTS
+    from test_opendrain import translator_bus
 
-    demo = Path(__file__).resolve().parents[1] / "workbooks" / "designs" / "demo-board.toml"
-    return rank_candidates(load_design(demo), "U4").format_text(width=None)
+    from pinlib.studies.candidates import rank_candidates
+    d = load_design(env.write("tb.toml", OD_HEAD + translator_bus(vtol="5 %")),
+                    library_folders=[OD_PARTS])
+    return rank_candidates(d, "U3").format_text(width=None)
 
 
 @case("FLIGHTS_HEAD")
@@ -4828,6 +4835,17 @@ def _(env):
     demo = Path(__file__).parent.parent / "workbooks" / "designs" / "demo-board.toml"
     bus = check_design(load_design(demo)).buses[0]
     return " ".join(c.reason or "" for s in bus.segments for c in s.checks)
+
+
+@case("FALL_JOINED_SOFT", M.FALL_JOINED_SOFT.format(ref="Q1", vth="1.5 V",
+                                                    basis="a class's typical value",
+                                                    typ="1 V"))
+def _(env):
+    # the demo's sensor bus: the library translator's VGS(th) 1.5 V (max) and 1.0 V (typ)
+    from pinlib.engines.dispatch import check_design
+    demo = Path(__file__).parent.parent / "workbooks" / "designs" / "demo-board.toml"
+    bus = check_design(load_design(demo)).buses[0]
+    return " ".join(c.message for s in bus.segments for c in s.checks)
 
 
 @case("FALL_OFFSET_NEVER", M.FALL_OFFSET_NEVER.format(up="SCL", v_lo="650 mV",

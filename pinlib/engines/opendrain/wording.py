@@ -574,11 +574,11 @@ def _never_falls(w: Words, bc, up: str, basis: str, c: int, details: dict,
 
 def _soft_threshold(chk: Check, bc, join) -> None:
     """A joined fall that fails only with the translator's soft threshold maximum (the
-    batch held it at a warning): it warns, saying so (the array paths read
-    ``details.limit_basis``, as for a soft limit)."""
+    batch held it at a warning): it warns, saying so; ``details.value_basis`` names the
+    threshold's basis (its limit, the specification's tf, is firm)."""
     th = join.link.dev.part.bridge.v_gs_th
     basis = soft_basis(th)
-    chk.details = {**chk.details, "limit_basis": basis}
+    chk.details = {**chk.details, "value_basis": basis}
     if chk.status == "fail":
         chk.status = "warn"
         chk.message += M.FALL_JOINED_SOFT.format(
