@@ -4848,6 +4848,15 @@ def _(env):
     return " ".join(c.message for s in bus.segments for c in s.checks)
 
 
+@case("FALL_JOINED_NEVER_FIX", M.FALL_JOINED_NEVER_FIX.format(via="Q1"))
+def _(env):
+    # the demo's sensor bus, as FALL_JOINED_NEVER
+    from pinlib.engines.dispatch import check_design
+    demo = Path(__file__).parent.parent / "workbooks" / "designs" / "demo-board.toml"
+    bus = check_design(load_design(demo)).buses[0]
+    return " ".join(c.fix or "" for s in bus.segments for c in s.checks)
+
+
 @case("FALL_OFFSET_NEVER", M.FALL_OFFSET_NEVER.format(up="SCL", v_lo="650 mV",
                                                       driver="U9 side a", level="720 mV"))
 def _(env):

@@ -699,6 +699,10 @@ FALL_OFFSET_NEVER = ("{up} never falls to {v_lo}, where its fall time ends: {dri
 # ...: the fix of that check
 FALL_OFFSET_FIX = ("a bridging part whose offset low sits below {v_lo}, or this one turned "
                    "round (its offset side away from this segment)")
+# ...: the fix of a joined line that never falls to its end level
+FALL_JOINED_NEVER_FIX = ("a MOSFET with a lower gate threshold at {via} (it joins the "
+                         "segments sooner), a stronger sink, or larger pull-ups (inside their "
+                         "windows)")
 # ...: the fix of a failing fall time of a joined line
 FALL_JOINED_FIX = ("; or, across {via}, less capacitance on either segment or a MOSFET with "
                    "a lower gate threshold (it joins them sooner)")

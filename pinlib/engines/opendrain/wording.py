@@ -518,6 +518,8 @@ def _fall(w: Words, ln: LineInputs, far: list) -> None:
     if chk.status == "fail" and chk.value is None and offset is not None:
         v_lo = float(lim.fall_levels(float(seg_in.vdd[c]))[0])
         _failed(chk, M.FALL_OFFSET_FIX.format(v_lo=_f(v_lo, "V")))
+    elif chk.status == "fail" and chk.value is None and join is not None:
+        _failed(chk, M.FALL_JOINED_NEVER_FIX.format(via=and_list(details["joined"]["via"])))
     elif chk.status == "fail":
         _failed(chk, "a stronger sink, a larger pull-up (inside its window), less bus "
                      "capacitance, or a part that states its output fall time (t_of_max)")
