@@ -689,8 +689,8 @@ EDGE_JOINED = ("joined through {via} with segment {far} below {v_join} (side a's
                "VGS(th)): Cb {cb} + {cb_far}, its pull-up {rp_far} too")
 # ...: the reason of a fall-time check whose joined line never reaches its end level
 FALL_JOINED_NEVER = ("{up} never falls to {v_lo}, where its fall time ends: {via} conducts "
-                     "only below {v_join}, and there the driver's guaranteed sink cannot "
-                     "carry both segments' pull-ups down that far")
+                     "only below {v_join}, where the sink cannot carry both segments' "
+                     "pull-ups")
 # ...: the reason of a fall-time check of a static-offset side, whose low sits at its
 # offset at or above the fall's end level
 FALL_OFFSET_NEVER = ("{up} never falls to {v_lo}, where its fall time ends: {driver} holds "
@@ -700,9 +700,8 @@ FALL_OFFSET_NEVER = ("{up} never falls to {v_lo}, where its fall time ends: {dri
 FALL_OFFSET_FIX = ("a bridging part whose offset low sits below {v_lo}, or this one turned "
                    "round (its offset side away from this segment)")
 # ...: the fix of a joined line that never falls to its end level
-FALL_JOINED_NEVER_FIX = ("a MOSFET with a lower gate threshold at {via} (it joins the "
-                         "segments sooner), a stronger sink, or larger pull-ups (inside their "
-                         "windows)")
+FALL_JOINED_NEVER_FIX = ("a MOSFET with a lower gate threshold at {via}, a stronger sink or "
+                         "larger pull-ups")
 # ...: the fix of a failing fall time of a joined line
 FALL_JOINED_FIX = ("; or, across {via}, less capacitance on either segment or a MOSFET with "
                    "a lower gate threshold (it joins them sooner)")
