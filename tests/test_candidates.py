@@ -201,10 +201,15 @@ def test_ranking_order_and_the_current_part():
     assert "nor-flash-spi" not in ids and "ribbon-cable" not in ids
     assert r.excluded > 0
     # a 5 V-only part is outside the 3.3 V rail's supply range: the class's typical
-    # range, not a datasheet's, so it warns (model.result.soft_limit)
-    assert r.candidate("mcu-5v").status == "warn"
-    assert r.candidate("mcu-5v").worst_check["id"] == "supply-range"
-    assert r.candidate("mcu-5v").worst_margin < 0
+    # range, not a datasheet's, so it warns (model.result.soft_limit). Its worst, as every
+    # part's here, is the sensor bus's SDA fall joined across Q1 (no margin: it warns,
+    # failing only at the translator class's threshold maximum); the supply range next,
+    # derived: (3.3 V · 0.95 − 4.5 V) / 4.5 V with mcu-5v's supply.min
+    five = r.candidate("mcu-5v")
+    assert five.status == "warn"
+    assert five.worst_check["id"] == "fall-time" and five.worst_check["segment"] == "main-3v3"
+    assert five.worst_margin == -math.inf
+    assert five.margins[1] == pytest.approx((3.3 * 0.95 - 4.5) / 4.5, rel=1e-12)
     # the figures that matter for the bus
     figs = r.candidate("eeprom-i2c").figures["sensors"]
     assert set(figs) == {"bus_capacitance", "rise_time", "v_ol", "pullup_resistor"}
@@ -559,41 +564,55 @@ def test_another_devices_rating_does_not_rank_the_candidates():
     assert all(c.worst_check["subject"] != "U1" for c in got.candidates)
 
 
-def test_a_margin_in_volts_is_shown_in_volts_and_never_ranked_as_a_fraction(capsys):
+def _demo_test_translator(tmp_path):
+    """The demo with the test translator at Q1 (VGS(th) 1.2 V, invented test data): its
+    gate drive, 1.71 V − 1.2 V = 510 mV, warns, and the sensor bus's joined falls pass
+    (the library part's 1.5 V joins the lines too low for the 3.3 V side's SDA to fall)."""
+    path = tmp_path / "demo-tfet.toml"
+    path.write_text(DEMO.read_text(encoding="utf-8").replace(
+        'part = "level-translator-mosfet"', 'part = "t-fet-translator"'), encoding="utf-8")
+    return path, load_design(path, library_folders=[PARTS])
+
+
+def test_a_margin_in_volts_is_shown_in_volts_and_never_ranked_as_a_fraction(capsys,
+                                                                            tmp_path):
     # reproducer: at the demo's translator Q1 the gate overdrive, 210 mV, read "+21.0 %"
-    # and was compared with fractional margins; it is the worst here because it alone
-    # warns (the ratings checks pass)
-    r = cand.rank_candidates(DEMO_DESIGN, "Q1")
-    first = r.candidates[0]
-    assert first.part == "level-translator-mosfet" and first.status == "warn"
+    # and was compared with fractional margins; it is the translator's worst here because
+    # it alone warns (the ratings checks pass)
+    path, design = _demo_test_translator(tmp_path)
+    r = cand.rank_candidates(design, "Q1")
+    first = r.candidate("t-fet-translator")
+    assert first.status == "warn"
     assert first.worst_check["id"] == "bridge-gate-drive"
     assert first.worst_check["margin_unit"] == "V"
     # the engine's own check, as pinlib check gives it: its margin in volts
     from pinlib.engines.dispatch import check_design
-    gate = [c for b in check_design(DEMO_DESIGN).results() for _, _, c in b.all_checks()
+    gate = [c for b in check_design(design).results() for _, _, c in b.all_checks()
             if c.id == "bridge-gate-drive"]
     assert len(gate) == 1 and gate[0].margin_unit == "V"
     assert first.worst_margin == pytest.approx(gate[0].margin, rel=1e-12)
-    assert first.margin_text() == "+210 mV"
+    assert first.margin_text() == "+510 mV"
     assert not any(m == pytest.approx(first.worst_margin) for m in first.margins)
-    assert main(["candidates", str(DEMO), "Q1", "--json"]) == 0
+    assert main(["candidates", str(path), "Q1", "--library", str(PARTS), "--json"]) == 0
     data = json.loads(capsys.readouterr().out)
-    assert data["candidates"][0]["worst_margin_unit"] == "V"
-    assert "+21.0 %" not in r.format_text(width=80)
+    (row,) = [c for c in data["candidates"] if c["part"] == "t-fet-translator"]
+    assert row["worst_margin_unit"] == "V"
+    assert "+51.0 %" not in r.format_text(width=80)
 
 
-def test_a_status_no_candidate_can_move_is_named_once(capsys):
+def test_a_status_no_candidate_can_move_is_named_once(capsys, tmp_path):
     # every part at U4 warns because the translator Q1 on the other segment warns (its
     # gate drive): the ranking marks the status and names that check once (a part whose
     # own check warns, e.g. past a class's typical limit, is left out here)
-    r = cand.rank_candidates(DEMO_DESIGN, "U4")
+    _, design = _demo_test_translator(tmp_path)
+    r = cand.rank_candidates(design, "U4")
     warned = [c for c in r.candidates if c.status == "warn" and c.worst_margin >= 0]
     assert warned and all(c.worst_check["status_by"]["id"] == "bridge-gate-drive"
                           for c in warned)
     text = r.format_text(width=None)
     assert "WARN†" in text
     assert text.count("Translator gate drive: a check no part at U4 can move") == 1
-    assert_same_ranking(r, cand.rank_candidates_slow(DEMO_DESIGN, "U4"))
+    assert_same_ranking(r, cand.rank_candidates_slow(design, "U4"))
 
 
 def test_a_figure_without_a_number_says_why_under_the_table():

@@ -901,12 +901,19 @@ def _(env):
 
 
 @case("STATUS_SET_ELSEWHERE", M.STATUS_SET_ELSEWHERE.format(
-    status="WARN", check="sensors sensor-1v8 Translator gate drive", ref="U4"))
+    status="WARN", check="x low Translator gate drive", ref="U3"))
 def _(env):
-    from pinlib.studies.candidates import rank_candidates
+    # a 1.8 V sensor behind the test translator (VGS(th) 1.2 V, invented test data): its
+    # gate drive, 1.71 V − 1.2 V, warns for every part at U3 (tests/test_opendrain.py).
+    # The demo's U4 was the case until its sensor bus's joined fall warned there too.
+    from test_opendrain import HEAD as OD_HEAD
+    from test_opendrain import PARTS as OD_PARTS
+    from test_opendrain import translator_bus
 
-    demo = Path(__file__).resolve().parents[1] / "workbooks" / "designs" / "demo-board.toml"
-    return rank_candidates(load_design(demo), "U4").format_text(width=None)
+    from pinlib.studies.candidates import rank_candidates
+    d = load_design(env.write("tb.toml", OD_HEAD + translator_bus(vtol="5 %")),
+                    library_folders=[OD_PARTS])
+    return rank_candidates(d, "U3").format_text(width=None)
 
 
 @case("FLIGHTS_HEAD")
@@ -5113,6 +5120,123 @@ def _(env):
 def _(env):
     return _switched_gauge(env).source
 
+def _bridge_texts(env, body: str, **kw) -> str:
+    """Every message, fix and reason of an open-drain bus's segments, joined."""
+    from pinlib.engines.dispatch import check_design
+    path = env.tmp / "bridge.toml"
+    path.write_text(body, encoding="utf-8")
+    bus = check_design(load_design(path, **kw)).buses[0]
+    return " ".join(f"{c.message} {c.fix or ''} {c.reason or ''} {c.source}"
+                    for s in bus.segments for c in s.checks)
+
+
+def _joined(env) -> str:
+    # the audit's 3.3 V host reaching a 5 V SMBus through a MOSFET translator
+    # (tests/test_bridge_spice.py, invented test data)
+    from test_bridge_spice import HEAVY_HOST
+    return _bridge_texts(env, HEAVY_HOST.replace("EXTRA", "150 pF"))
+
+
+def _backwards(env) -> str:
+    # the translator fitted backwards, side a on 5 V (tests/test_bridge_physics.py)
+    from test_bridge_physics import TRANSLATOR
+    return _bridge_texts(env, TRANSLATOR.replace("SIDE_HOST", "b").replace("SIDE_PACK", "a")
+                         .replace("OWN", ""))
+
+
+def _offset(env, offset: str = "0.72 V") -> str:
+    # an isolator whose 0.72 V offset side alone drives SCL on the 5 V segment
+    # (tests/test_bridge_physics.py, invented test data)
+    from test_bridge_physics import ISOLATED, ISOLATOR
+    env.write("parts/t-isolator-offset.toml", ISOLATOR.replace("OFFSET", offset))
+    return _bridge_texts(env, ISOLATED.replace('library = ["parts"]',
+                                               f'library = ["{env.tmp / "parts"}"]'))
+
+
+@case("EDGE_JOINED", M.EDGE_JOINED.format(via="Q1", far="pack-5v", v_join="1.63 V",
+                                          cb="183 pF", cb_far="47 pF", rp_far="2.22 kΩ"))
+def _(env):
+    # derived: 3.3 V · 0.95 − VGS(th) 1.5 V (the library part's) = 1.635 V; 2.2 kΩ · 1.01
+    # (at +1 %); 47 pF: the pack side's 25 cm at 1 pF/cm and its pins
+    return _joined(env)
+
+
+@case("RISE_ALONE_ABOVE")
+def _(env):
+    return _joined(env)
+
+
+@case("FALL_JOINED_FIX", M.FALL_JOINED_FIX.format(via="Q1"))
+def _(env):
+    return _joined(env)
+
+
+@case("FALL_JOINED_NEVER", M.FALL_JOINED_NEVER.format(up="SDA", v_lo="940 mV", via="Q1",
+                                                      v_join="210 mV"))
+def _(env):
+    # the demo's 1.8 V sensor behind the library's MOSFET translator: 1.71 V − 1.5 V;
+    # I2C's 0.3 · 3.135 V end (published: UM10204 rev. 6, table 10)
+    from pinlib.engines.dispatch import check_design
+    demo = Path(__file__).parent.parent / "workbooks" / "designs" / "demo-board.toml"
+    bus = check_design(load_design(demo)).buses[0]
+    return " ".join(c.reason or "" for s in bus.segments for c in s.checks)
+
+
+@case("FALL_JOINED_SOFT", M.FALL_JOINED_SOFT.format(ref="Q1", vth="1.5 V",
+                                                    basis="a class's typical value",
+                                                    typ="1 V"))
+def _(env):
+    # the demo's sensor bus: the library translator's VGS(th) 1.5 V (max) and 1.0 V (typ)
+    from pinlib.engines.dispatch import check_design
+    demo = Path(__file__).parent.parent / "workbooks" / "designs" / "demo-board.toml"
+    bus = check_design(load_design(demo)).buses[0]
+    return " ".join(c.message for s in bus.segments for c in s.checks)
+
+
+@case("FALL_JOINED_NEVER_FIX", M.FALL_JOINED_NEVER_FIX.format(via="Q1"))
+def _(env):
+    # the demo's sensor bus, as FALL_JOINED_NEVER
+    from pinlib.engines.dispatch import check_design
+    demo = Path(__file__).parent.parent / "workbooks" / "designs" / "demo-board.toml"
+    bus = check_design(load_design(demo)).buses[0]
+    return " ".join(c.fix or "" for s in bus.segments for c in s.checks)
+
+
+@case("FALL_OFFSET_NEVER", M.FALL_OFFSET_NEVER.format(up="SCL", v_lo="650 mV",
+                                                      driver="U9 side a", level="720 mV"))
+def _(env):
+    return _offset(env)
+
+
+@case("FALL_OFFSET_FIX", M.FALL_OFFSET_FIX.format(v_lo="650 mV"))
+def _(env):
+    return _offset(env)
+
+
+@case("GATE_SIDE_SOURCE")
+def _(env):
+    return _backwards(env)
+
+
+@case("GATE_SIDE_BAD", M.GATE_SIDE_BAD.format(ref="Q1", va="5 V", vb="3.3 V"))
+def _(env):
+    return _backwards(env)
+
+
+@case("GATE_SIDE_FIX", M.GATE_SIDE_FIX.format(ref="Q1", va="5 V", vb="3.3 V"))
+def _(env):
+    return _backwards(env)
+
+
+@case("GATE_SIDE_OK", M.GATE_SIDE_OK.format(ref="Q1", va="3.3 V", vb="5 V"))
+def _(env):
+    return _joined(env)
+
+
+@case("SUPPLY_RANGE_MOSFET_FIX", M.SUPPLY_RANGE_MOSFET_FIX.format(ref="Q1"))
+def _(env):
+    return _backwards(env)
+
 
 @pytest.mark.parametrize(("name", "expected", "trigger"), CASES)
 def test_message(name, expected, trigger, tmp_path, monkeypatch, capsys):
@@ -5186,3 +5310,4 @@ def test_the_own_text_check_sees_a_text_on_the_next_line():
     assert own.search('raise InputError(\n    "text", field="x")')
     assert own.search("raise argparse.ArgumentTypeError(f'x {n}')")
     assert not own.search("raise InputError(\n    M.NOT_A_NUMBER, field='x')")
+

@@ -1121,7 +1121,10 @@ def test_batch_at_one_variant_and_at_many_gives_the_same_numbers(path, folders):
                 for name, fig in g.figures.items():
                     got = sb.figures[name]
                     if fig.value is None:
-                        assert got is None, name
+                        # none, or no number (a line that never falls); the clock such an
+                        # edge allows is 0 Hz in the batch (pullup.scl_frequency)
+                        no = (None, 0.0) if name == "scl_frequency_effective" else (None,)
+                        assert got is None or _batch_number(got, i) in no, name
                         continue
                     # derived: the same figure over arrays as in plain Python
                     assert float(got[i]) == pytest.approx(fig.value, rel=1e-12, abs=0), name
@@ -1279,7 +1282,10 @@ def test_batch_names_the_element_and_corner_of_each_worst():
                                    for n in failing), (one.fix, failing)
                     if arr.row is not None and arr.names and len(arr.names) > 1:
                         later_rows += int(arr.row[0]) > 0
-                    if one.id in ("rise-time", "pullup-window", "scl-frequency"):
+                    if one.id == "rise-time" and "joined through" in one.message:
+                        # a rise joined across a pass transistor: one element, per corner
+                        assert arr.worst()[0] is None, one.id
+                    elif one.id in ("rise-time", "pullup-window", "scl-frequency"):
                         assert arr.worst() == (None, None), one.id  # one element, one point
     # common practice, no source: the designs exercise a worst past the first row and
     # both corners, so a tracker stuck at 0 fails

@@ -1006,7 +1006,7 @@ def _ranking_cells(table_html: str) -> tuple[list[str], list[list[str]]]:
     return heads, rows
 
 
-def test_swap_ranking_table_names_its_figures_place_and_each_check_as_the_command():
+def test_swap_ranking_table_names_its_figures_place_and_each_check_as_the_command(tmp_path):
     """Workbook 05's candidates table: the figures' heading names the bus, segment and
     lines they are of; each worst margin and the check that sets it read as `pinlib
     candidates` writes them (the bus named only where the position is on several)."""
@@ -1032,12 +1032,19 @@ def test_swap_ranking_table_names_its_figures_place_and_each_check_as_the_comman
     assert "figures of bus sensors, segment main-3v3, the worse of SDA and SCL" in heads
     assert "worst margin % of its limit" in heads, heads
     assert not any(row[4].startswith("sensors ") for row in rows), rows
-    # Q1 joins two segments; its worst margin is the gate drive's, in volts
-    r = rank_candidates(design, "Q1")
+    # Q1 joins two segments; with the test translator (VGS(th) 1.2 V, invented test
+    # data: the library part's 1.5 V leaves the demo's 3.3 V SDA without a fall time,
+    # a margin-less worst) its worst margin is the gate drive's, in volts
+    variant = tmp_path / "demo-tfet.toml"
+    variant.write_text(DEMO.read_text(encoding="utf-8").replace(
+        'part = "level-translator-mosfet"', 'part = "t-fet-translator"'), encoding="utf-8")
+    parts = Path(__file__).parent / "data" / "parts"
+    r = rank_candidates(load_design(variant, library_folders=[parts]), "Q1")
     heads, rows = _ranking_cells(SwapExplorer._ranking_html(r, "sensors"))
     assert "worst margin % of its limit, or in V" in heads, heads
     assert "figures of bus sensors, segment main-3v3, the worse of SDA and SCL" in heads
-    assert rows[0][3] == r.candidates[0].margin_text(1) and rows[0][3].endswith(" mV")
+    k = next(i for i, c in enumerate(r.candidates) if c.part == "t-fet-translator")
+    assert rows[k][3] == r.candidates[k].margin_text(1) and rows[k][3].endswith(" mV")
 
 
 def _listed(x) -> list[str]:

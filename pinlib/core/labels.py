@@ -112,6 +112,7 @@ CHECKS: dict[str, str] = {
     "ringing": "Ringing re-crossings",
     "pull-up": "Pull-up",
     "bridge-gate-drive": "Translator gate drive",
+    "bridge-gate-side": "Translator side a on the lower rail",
     "crosstalk-low": "Crosstalk held low",
     "crosstalk-high": "Crosstalk held high",
     "crosstalk-glitch": "Crosstalk glitch",

@@ -708,6 +708,52 @@ SINK_OWN_RAIL_LOW = ", its own {vdd} rail at its minimum"
 # rests on a soft one: it fails against the firm bound
 WINDOW_BELOW_FIRM = ("; below {limit}, Rp(min) of {driver}'s sink point ({basis}), a firm "
                      "limit")
+# pinlib/engines/opendrain/wording.py: rise-time and fall-time of a line joined to another
+# segment through a pass-transistor translator while the transistor conducts
+EDGE_JOINED = ("joined through {via} with segment {far} below {v_join} (side a's rail less "
+               "VGS(th)): Cb {cb} + {cb_far}, its pull-up {rp_far} too")
+# ...: the reason of a fall-time check whose joined line never reaches its end level
+FALL_JOINED_NEVER = ("{up} never falls to {v_lo}, where its fall time ends: {via} conducts "
+                     "only below {v_join}, where the sink cannot carry both segments' "
+                     "pull-ups")
+# ...: the reason of a fall-time check of a static-offset side, whose low sits at its
+# offset at or above the fall's end level
+FALL_OFFSET_NEVER = ("{up} never falls to {v_lo}, where its fall time ends: {driver} holds "
+                     "its low at {level}, its static offset (or where the pull-up's current "
+                     "past its IOL holds it)")
+# ...: the fix of that check
+FALL_OFFSET_FIX = ("a bridging part whose offset low sits below {v_lo}, or this one turned "
+                   "round (its offset side away from this segment)")
+# ...: the fix of a joined line that never falls to its end level
+FALL_JOINED_NEVER_FIX = ("a MOSFET with a lower gate threshold at {via}, a stronger sink or "
+                         "larger pull-ups")
+# ...: the fix of a failing fall time of a joined line
+FALL_JOINED_FIX = ("; or, across {via}, less capacitance on either segment or a MOSFET with "
+                   "a lower gate threshold (it joins them sooner)")
+# ...: a fall of a joined line that fails only with the translator's threshold at its
+# soft (a class's typical, an estimated) maximum and passes at its typical value
+FALL_JOINED_SOFT = (" (it fails only with {ref}'s gate threshold VGS(th) at {vth}, {basis}; "
+                    "at its typical {typ} it passes: a warning, not a failure; recording "
+                    "{ref}'s VGS(th) makes it firm)")
+# ...: the rise of such a line above the join level
+RISE_ALONE_ABOVE = "; alone above it"
+# pinlib/engines/opendrain/wording_segment.py: bridge-gate-side, a pass-transistor
+# translator whose side a (gate, source and body) is on a higher rail than its side b
+GATE_SIDE_SOURCE = ("physics: the n-MOSFET's body diode, from its source and body (side a) "
+                    "to its drain (side b), and its gate on side a's rail")
+GATE_SIDE_OK = "{ref} side a (gate and source) on {va}, side b on {vb}"
+GATE_SIDE_BAD = ("{ref} is fitted backwards: side a (gate and source) is on {va}, above side "
+                 "b's {vb}; the body diode from side a to side b conducts (and the channel, "
+                 "its gate on the higher rail): side b's lines idle about a diode drop below "
+                 "{va}, above their own rail, and feed current into the {vb} rail and the "
+                 "pins on it")
+GATE_SIDE_FIX = ("swap {ref}'s sides: side a on the {vb} segment (the lower rail), side b on "
+                 "the {va} segment")
+# ...: supply-range of a pass-transistor translator's side: the side takes its segment's
+# rail (its terminal is on the bus line), so its own rail is no fix
+SUPPLY_RANGE_MOSFET_FIX = ("{ref}'s side takes its segment's rail (its transistor terminal is "
+                           "on the bus line): fit side a on the lower rail and side b on the "
+                           "higher, or choose a translator for these rails")
 # pinlib/engines/opendrain/wording_segment.py: setup-time where the data valid time taken
 # is a part's soft value (its limit, tSU;DAT, is the specification's: the check stays firm)
 SETUP_SOFT_VALID = ("; {which} {value} is {kind} (the limit is firm: the specification's "

@@ -125,11 +125,12 @@ def figures_place(row: dict) -> str:
     return where
 
 #: Checks no part in a plain position can move: the bus clock against its mode's
-#: limit, a pass-transistor translator's gate drive and the facing of static-offset
+#: limit, a pass-transistor translator's gate drive and sides, and the facing of static-offset
 #: sides.  They count for the status but not for the worst margin, which would
 #: otherwise often be the same 0 % (a bus run at its mode's maximum clock) for every
 #: candidate.
-FIXED_CHECKS = ("scl-frequency", "bridge-gate-drive", "bridge-offset-facing")
+FIXED_CHECKS = ("scl-frequency", "bridge-gate-drive", "bridge-gate-side",
+                "bridge-offset-facing")
 
 #: Checks of one device's own rating against the bus (its supply range, its f_max, its
 #: highest input voltage, the slowest device's speed, its SPI modes): the check names that device as

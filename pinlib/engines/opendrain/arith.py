@@ -9,9 +9,64 @@ translator.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+from typing import Any
+
 import numpy as np
 
 from pinlib.physics import pullup as pu
+from pinlib.physics.pullup.joined import far_fall_time, joined_fall_time, joined_rise_time
+
+
+@dataclass
+class Join:
+    """The line across a pass-transistor translator (or, merged, across several) while
+    the transistor conducts (:mod:`pinlib.physics.pullup.joined`): its pull-up at both
+    ends of its tolerance, its capacitance (at its maximum and its low end), its rail at
+    the corners, and the join level (the gate's rail, side ``a``'s, less the threshold).
+    ``far_is_b``: the far line is the part's side ``b`` (no body-diode path toward the
+    near one). [Ω], [F], [V]"""
+
+    link: Any
+    rp_lo: Any
+    rp_hi: Any
+    cb: Any
+    cb_low: Any
+    v: Any
+    v_join: Any
+    far_is_b: bool
+    links: list | None = None  # every link merged (None: ``link`` alone)
+    #: the join level at the part's typical threshold, where its threshold is a soft
+    #: value (a class's typical maximum, an estimate) and it states a typical one; None
+    #: otherwise (a fall that fails at the stated threshold then fails firm)
+    v_join_typ: Any = None
+
+    @staticmethod
+    def merged(joins: list) -> Join | None:
+        """Several joins as one (a line joined through more than one translator): the
+        capacitances summed, the pull-ups as their Thevenin equivalent, the lowest join
+        level (the far charge removed lowest: slower, a bound still). None for none."""
+        if len(joins) <= 1:
+            return joins[0] if joins else None
+        g_lo = sum(1.0 / j.rp_lo for j in joins)
+        g_hi = sum(1.0 / j.rp_hi for j in joins)
+        v = sum(j.v / j.rp_lo for j in joins) / g_lo
+        v_join = joins[0].v_join
+        for j in joins[1:]:
+            v_join = np.minimum(v_join, j.v_join)
+        return Join(joins[0].link, 1.0 / g_lo, 1.0 / g_hi, sum(j.cb for j in joins),
+                    sum(j.cb_low for j in joins), v, v_join, False, [j.link for j in joins])
+
+
+def joined_rise(join: Join, rp, cb, v, v_lo, v_hi, fast: bool = False):
+    """The rise of a line joined through pass transistors between two levels
+    (:func:`~pinlib.physics.pullup.joined.joined_rise_time`): ``rp`` and ``cb`` this
+    line's, and the far line's at the same ends (its pull-up's maximum and its
+    capacitance's, or with ``fast`` their low ends). [s]"""
+    if fast:
+        return joined_rise_time(rp, cb, v, join.rp_lo, join.cb_low, join.v, join.v_join,
+                                v_lo, v_hi)
+    return joined_rise_time(rp, cb, v, join.rp_hi, join.cb, join.v, join.v_join, v_lo, v_hi)
 
 
 def far_drivers(far, segs, signal: str):
@@ -154,6 +209,18 @@ def output_fall(lim, d, cb, v, link, rp_lo, mode=None):
     return np.where(ok, t, np.inf), kind, why
 
 
+def _across(join: Join, rp_lo, cb, v, d, v_hi, v_lo, r_s, v_join):
+    """The fall of this line pulled low by driver ``d`` across the translator of
+    ``join`` (the driver's segment), joined below ``v_join``: on side a the sink's
+    line's own between this line's levels (the body diode lets it follow early, never
+    below), on side b held at its rail until the transistor opens. [s]"""
+    if join.far_is_b:  # this line is side a
+        return joined_fall_time(join.rp_lo, join.cb, join.v, rp_lo, cb, v, v_join, d.v_ol,
+                                d.i_ol, np.minimum(v_hi, join.v), v_lo, r_s)
+    return far_fall_time(join.rp_lo, join.cb, join.v, rp_lo, cb, v, v_join, d.v_ol, d.i_ol,
+                         v_hi, v_lo, r_s)
+
+
 def mode_fall(lim, v) -> tuple:
     """The mode's output fall guarantee (``lim.output_fall()``) and a function giving its
     sink point at the rail ``v`` (``lim.sink_point(v)``, worked out once when first
@@ -169,18 +236,23 @@ def mode_fall(lim, v) -> tuple:
     return lim.output_fall(), point
 
 
-def fall_bounds(lim, rp_lo, cb, v, drivers, far, segs, signal: str, phys=pu) -> list:
+def fall_bounds(lim, rp_lo, cb, v, drivers, far, segs, signal: str, phys=pu,
+                joins=None) -> list:
     """Upper bound of the fall time of each driver (and of each across a translator,
     through its on-resistance): the smaller of the bound from its guaranteed sink
     current and the output fall time it guarantees (:func:`output_fall`); ``phys`` as
-    for :func:`low_levels`.
+    for :func:`low_levels`.  ``joins``: the line's :class:`Join` per pass transistor
+    (none: the line alone); the sink then discharges both lines while the transistor
+    conducts (:mod:`pinlib.physics.pullup.joined`): a driver here pulls both, merged
+    (:meth:`Join.merged`); one across a translator pulls this line through its own.
 
     Returns
     -------
     list
         ``(t, driver, link or None, info)`` with ``info`` a dict: ``t_sink`` the
         sink-current bound, ``t_of`` the output fall bound (``inf`` where it does not
-        hold) or None, ``kind`` and ``why`` of :func:`output_fall`. [s]
+        hold) or None, ``kind`` and ``why`` of :func:`output_fall`, ``join`` the
+        :class:`Join` the bound took (None for none). [s]
     """
     v_lo, v_hi = lim.fall_levels(v)
     pairs = [(d, None, d.r_series) for d in drivers]
@@ -188,10 +260,42 @@ def fall_bounds(lim, rp_lo, cb, v, drivers, far, segs, signal: str, phys=pu) -> 
               for d, link, _, _ in far_drivers(far, segs, signal)]
     out = []
     mode = mode_fall(lim, v)
+    joins = joins or []
+    near = Join.merged(joins)
+    by_link = {id(j.link): j for j in joins}
     for d, link, r_s in pairs:
-        t_sink = np.asarray(phys.fall_time_bound(rp_lo, cb, v, d.v_ol, d.i_ol, v_hi, v_lo,
-                                                 r_s), dtype=float)
-        t_of, kind, why = output_fall(lim, d, cb, v, link, rp_lo, mode)
+        join = near if link is None else by_link.get(id(link))
+        if join is None:
+            t_sink = np.asarray(phys.fall_time_bound(rp_lo, cb, v, d.v_ol, d.i_ol, v_hi, v_lo,
+                                                     r_s), dtype=float)
+        elif link is None:  # this line's sink pulls both lines
+            t_sink = joined_fall_time(rp_lo, cb, v, join.rp_lo, join.cb, join.v,
+                                      join.v_join, d.v_ol, d.i_ol, v_hi, v_lo, r_s)
+        else:
+            t_sink = _across(join, rp_lo, cb, v, d, v_hi, v_lo, r_s, join.v_join)
+        if d.offset is not None and link is None:
+            # a static-offset side holds its low at its offset (higher where the pull-up
+            # draws more than its IOL): an end level at or below that is never reached
+            held = np.asarray(pu.held_low_level(
+                np.broadcast_to(d.offset, np.broadcast_shapes(np.shape(d.offset),
+                                                              np.shape(v))),
+                v, rp_lo, d.i_ol), dtype=float)
+            t_sink = np.where(held >= v_lo, np.inf, t_sink)
+        # a compliant stage's tof holds for the load it drives: both lines' capacitance
+        load = cb if join is None or link is not None else cb + join.cb
+        t_of, kind, why = output_fall(lim, d, load, v, link, rp_lo, mode)
         t = t_sink if t_of is None else np.minimum(t_sink, t_of)
-        out.append((t, d, link, {"t_sink": t_sink, "t_of": t_of, "kind": kind, "why": why}))
+        # at the part's typical threshold, where its stated one is soft: a fall that fails
+        # only at the soft maximum rests on it (it warns, batch._fall_checks)
+        t_typ = None
+        if join is not None and join.v_join_typ is not None:
+            t_typ = (joined_fall_time(rp_lo, cb, v, join.rp_lo, join.cb, join.v,
+                                      join.v_join_typ, d.v_ol, d.i_ol, v_hi, v_lo, r_s)
+                     if link is None else
+                     _across(join, rp_lo, cb, v, d, v_hi, v_lo, r_s, join.v_join_typ))
+            t_typ = t_typ if t_of is None else np.minimum(t_typ, t_of)
+        out.append((t, d, link, {"t_sink": t_sink, "t_of": t_of, "kind": kind, "why": why,
+                                 "join": join, "t_typ": t_typ,
+                                 "offset": held if d.offset is not None and link is None
+                                 else None}))
     return out

@@ -37,7 +37,13 @@ from collections.abc import Sequence
 import numpy as np
 
 from pinlib.core.errors import DesignError, InputError
-from pinlib.engines.opendrain.arith import fall_bounds, far_drivers, low_levels
+from pinlib.engines.opendrain.arith import (
+    Join,
+    fall_bounds,
+    far_drivers,
+    joined_rise,
+    low_levels,
+)
 from pinlib.engines.opendrain.batchfigures import _figures, _reduce, one
 from pinlib.engines.opendrain.batchgathered import line_from
 from pinlib.engines.opendrain.batchinputs import (
@@ -116,6 +122,30 @@ def _far(s: _Seg, segs: list[_Seg], links: list[_Link], signal: str):
             if link.kind == "mosfet"]
 
 
+def _joins(ctx, s: _Seg, signal: str) -> list[Join]:
+    """The line's partner across each pass-transistor translator (:class:`.arith.Join`):
+    the far line's pull-up, capacitance and rail, and the level below which the
+    transistor conducts: the rail of the part's side ``a`` (its gate's) less its
+    threshold (``v_gs_th``; 0 V where the part states none)."""
+    out = []
+    for link in ctx.links[s.index]:
+        if link.kind != "mosfet":
+            continue
+        o = ctx.segs[link.other]
+        fl = o.lines[signal]
+        r = o.r_eff(signal)
+        here_a = link.dev.part_side == "a"
+        br = link.dev.part.bridge
+        th = br.v_gs_th if br is not None else None
+        v_th = float(th.value) if th is not None else 0.0
+        gate = (s if here_a else o).v
+        typ = th.typ if th is not None and th.soft else None
+        out.append(Join(link, r * (1 - o.tol), r * (1 + o.tol), fl.cb,
+                        fl.cb if fl.cb_low is None else fl.cb_low, o.v, gate - v_th, here_a,
+                        v_join_typ=None if typ is None else gate - float(typ)))
+    return out
+
+
 def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     lim, v, tol, up = ctx.lim, s.v, s.tol, ln.signal.upper()
     warn = ctx.warn
@@ -151,24 +181,49 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
     # (limits.rise_factor): the line never gets there, as below
     k = ln.rise_factor
     k_ok = np.isfinite(k)
-    tr = np.where(k_ok, phys.rise_time(rp_hi, ln.cb, np.where(k_ok, k, 1.0)), np.inf)
-    f["rise_time"] = tr
-    f["rise_time_10_90"] = phys.rise_time(rp_hi, ln.cb, RISE_10_90)
+    joins = _joins(ctx, s, ln.signal) if far else []
+    join = Join.merged(joins)
+    if join is None:
+        tr = np.where(k_ok, phys.rise_time(rp_hi, ln.cb, np.where(k_ok, k, 1.0)), np.inf)
+        f["rise_time_10_90"] = phys.rise_time(rp_hi, ln.cb, RISE_10_90)
+    else:  # joined while the pass transistor conducts: the check at each rail corner
+        with np.errstate(all="ignore"):  # a rail below the upper point: inf, as above
+            tr = joined_rise(join, rp_hi, ln.cb, v, *ctx.lim.measuring_levels(v))
+        tr = np.where(k_ok, tr, np.inf)
+        f["rise_time_10_90"] = _worst_max(joined_rise(join, rp_hi, ln.cb, v, 0.1 * v,
+                                                      0.9 * v))
+    f["rise_time"] = tr if join is None else _worst_max(tr)
     # a line its pins' leakage holds below the rise's upper level never completes the
     # rise (at either rail corner): it has no rise time (infinite), and the check fails
     # with the reason
     voh = phys.high_level(v, rp_hi, ln.leakage)  # the high level: the v-oh checks' too
     reached = np.all(voh >= lim.measuring_levels(v)[1], axis=-1, keepdims=True)
-    out.pick("rise-time", up, [le(np.where(reached, tr, np.inf), lim.tr_max)], warn, "s")
+    rc = out.pick("rise-time", up, [le(np.where(reached, tr, np.inf), lim.tr_max)], warn, "s")
+    rc.basis = join  # the wording names the joined line (None: the line alone)
     tr_min = lim.tr_min(np.asarray(v, dtype=float))
     if tr_min is not None:  # the fastest rise: the pull-up and Cb at their low ends
-        out.pick("rise-time-min", up, [ge(phys.rise_time(rp_lo, ln.cb_low, ln.rise_factor),
-                                          tr_min)], warn, "s")
+        fast = (phys.rise_time(rp_lo, ln.cb_low, ln.rise_factor) if join is None else
+                joined_rise(join, rp_lo, ln.cb_low, v, *lim.measuring_levels(v), fast=True))
+        out.pick("rise-time-min", up, [ge(fast, tr_min)], warn, "s")
     # -- low levels
     raw, offset_levels, plain = low_levels(v, rp_lo, ln.drivers, far, ctx.segs, ln.signal,
                                            phys)
     levels = [(vb, i, d if link is None else None) for vb, i, d, link in raw]
-    f["v_ol"] = None
+    # a low driven by a static-offset side sits at its offset (held higher where the
+    # pull-up draws more than its IOL): the bus's low level there, which the pins other
+    # than the offset side's own read (bridge-offset checks each against it)
+    vol_off = nml_off = None
+    if offset_levels:
+        vol_off = _reduce(np.max, [np.asarray(pu.held_low_level(
+            np.broadcast_to(vb, np.broadcast_shapes(np.shape(vb), np.shape(v))), v, rp_lo,
+            d.i_ol), dtype=float) for vb, _, d in offset_levels])
+        own = {d.tap.dev.ref for _, _, d in offset_levels}
+        others = [r.v_il for r in ln.receivers if r.tap.dev.ref not in own]
+        if others:
+            nml_off = _reduce(np.min, others) - vol_off
+    f["v_ol"] = None if vol_off is None else _worst_max(vol_off)
+    f["noise_margin_low"] = None if nml_off is None else np.min(nml_off, axis=-1,
+                                                                 keepdims=True)
     if levels:
         shapes = {lv[0].shape for lv in levels}
         if len(shapes) == 1:  # the usual case: no broadcasting needed
@@ -177,7 +232,7 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             shape = np.broadcast_shapes(*shapes)
             stacked = np.stack([np.broadcast_to(lv[0], shape) for lv in levels])
         vol_bus = np.max(stacked, axis=0)
-        f["v_ol"] = _worst_max(vol_bus)
+        f["v_ol"] = _worst_max(vol_bus if vol_off is None else np.maximum(vol_bus, vol_off))
         if ln.receivers:
             chk = out.pick("v-ol", up, [le(vol_bus, r.v_il) for r in ln.receivers], warn, "V",
                            [r.tap.label for r in ln.receivers], per_row=True,
@@ -187,6 +242,8 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             out.after(lambda: _driver_behind(chk, stacked, ctx.n, behind))
             vil_min = _reduce(np.min, [r.v_il for r in ln.receivers])
             nml = vil_min - vol_bus
+            if nml_off is not None:  # the offset side's low, read by the other pins
+                nml = np.minimum(nml, nml_off)
             f["noise_margin_low"] = np.min(nml, axis=-1, keepdims=True)
             if lim.v_nl_rel is not None:
                 limit = lim.v_nl_rel * v
@@ -213,7 +270,7 @@ def _line_checks(ctx, s: _Seg, ln: _Line, out: _Out, figs: dict) -> None:
             limit = lim.v_nh_rel * v
             nh = out.pick("noise-margin-high", up, [ge(nmh, limit)], warn, "V")
             f["noise_margin_high"] = lambda: nh.value[:, None]  # as noise_margin_low
-    _fall_checks(ctx, s.index, ln, out, f, rp_lo, v, far, phys)
+    _fall_checks(ctx, s.index, ln, out, f, rp_lo, v, far, phys, joins)
 
 
 def _in_domain(ctx, ln: _Line, v, rp_lo, rp_hi, far) -> bool:
@@ -328,17 +385,24 @@ def _index(items: list, x) -> int:
 
 
 def _fall_checks(ctx, s_index: int, ln: _Line, out: _Out, f: dict, rp_lo, v, far,
-                 phys) -> None:
-    """Fall time (each driver's upper bound, the worst named) and tf(min)."""
+                 phys, joins=None) -> None:
+    """Fall time (each driver's upper bound, the worst named; joined across pass
+    transistors, ``joins``) and tf(min)."""
     lim, warn, up = ctx.lim, ctx.warn, ln.signal.upper()
-    bounds = fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far, ctx.segs, ln.signal, phys)
+    bounds = fall_bounds(lim, rp_lo, ln.cb, v, ln.drivers, far, ctx.segs, ln.signal, phys,
+                         joins)
     f["fall_time"] = None
     if not bounds:
         return
     f["fall_time"] = _reduce(np.max, [_worst_max(t) for t, _, _, _ in bounds])
+    # a joined row that fails only with the translator's soft threshold maximum (it
+    # passes at its typical one) rests on that value: it warns (arith.fall_bounds' t_typ)
+    soft = [False if info["t_typ"] is None else
+            np.all(info["t_typ"] <= lim.tf_max, axis=-1, keepdims=True)
+            for _, _, _, info in bounds]
     ft = out.pick("fall-time", up, [le(t, lim.tf_max) for t, _, _, _ in bounds], warn, "s",
                   [d.tap.label + ("" if link is None else f" via {link.dev.ref}")
-                   for _, d, link, _ in bounds])
+                   for _, d, link, _ in bounds], soft=soft)
     # per row: what bounds it (arith.fall_bounds' info) and whose driver it is (the
     # segment and the index among that segment's drivers on this line)
     ft.basis = [(info, s_index if link is None else link.other,
@@ -457,6 +521,8 @@ def _bridge_checks(ctx, s: _Seg, out: _Out) -> None:
         d = link.dev
         if link.kind == "mosfet":
             other = ctx.segs[link.other]
+            if d.part_side == "a":  # its gate and source side on the lower rail (or equal)
+                out.truth("bridge-gate-side", None, seg.supply <= other.seg.supply, (d.ref,))
             if seg.supply > other.seg.supply:
                 continue
             br = d.part.bridge

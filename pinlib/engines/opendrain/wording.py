@@ -12,6 +12,8 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 from pinlib.core import messages as M
 from pinlib.core.labels import and_list, few_named
 from pinlib.engines.opendrain.arith import BY_PART, far_drivers
@@ -21,7 +23,7 @@ from pinlib.engines.opendrain.bridges import overdrive
 from pinlib.engines.opendrain.explain import SINK_MODEL, window_advice
 from pinlib.engines.opendrain.inputs import LineInputs, SegmentInputs, _default, _f
 from pinlib.engines.opendrain.rules import _CORNERS, GATE_OVERDRIVE
-from pinlib.model.result import STATUSES, Check, Group, soft_limit
+from pinlib.model.result import STATUSES, Check, Group, soft_basis, soft_limit
 from pinlib.physics.pullup import rise_time_with_leakage
 
 
@@ -157,11 +159,17 @@ def line(w: Words, ln: LineInputs) -> None:
     grp.add(_window(w, ln, r_eff, rp_lo))
     defin = ("30–70 %" if lim.rise_definition == "30-70" else "SMBus points 0.65 V–1.50 V")
     bc = w.take("rise-time")
-    basis = (f"{defin}, Rp {_f(rp_hi, 'Ω')} at +{_f(tol, '%')}, Cb {_f(ln.cb, 'F')}, factor "
-             f"{ln.rise_factor:.4g}")
     # an infinite factor (a rail below the SMBus upper point) has no number
     details = {"definition": lim.rise_definition,
                "factor": ln.rise_factor if math.isfinite(ln.rise_factor) else None}
+    if bc.basis is None:
+        basis = (f"{defin}, Rp {_f(rp_hi, 'Ω')} at +{_f(tol, '%')}, Cb {_f(ln.cb, 'F')}, "
+                 f"factor {ln.rise_factor:.4g}")
+    else:  # joined through pass transistors while they conduct (batch.Join)
+        text, details["joined"] = joined_words(w, bc.basis, row_corner(bc)[1], ln.cb,
+                                               bc.basis.rp_hi)
+        basis = (f"{defin}, Rp {_f(rp_hi, 'Ω')} at +{_f(tol, '%')}; {text}"
+                 f"{M.RISE_ALONE_ABOVE}")
     if math.isfinite(bc.value[0]):
         grp.add(make(bc, lim.source_edges, f"{up} rise time {_f(bc.value[0], 's')} ({basis})",
                      subject=up, details=details))
@@ -501,14 +509,34 @@ def _fall(w: Words, ln: LineInputs, far: list) -> None:
     text, details = fall_basis(lim, d, info, c, ln.cb)
     basis = (f"driver {d.tap.label}{via}: {text}; pull-up at −{_f(tol, '%')}, Cb {_f(ln.cb, 'F')}, "
              f"{_CORNERS[c]}")
+    join = info.get("join")
+    if join is not None:  # the sink discharges both lines while the transistor conducts
+        text, details["joined"] = joined_words(w, join, c, ln.cb, join.rp_lo)
+        basis += f"; {text}"
+    offset = info.get("offset")
     if math.isfinite(bc.value[0]):
         chk = make(bc, lim.source_edges, f"{up} fall time at most {_f(bc.value[0], 's')} "
                    f"({basis})", subject=up, details=details)
     else:  # the bound is infinite: the line never reaches the fall's lower level
-        chk = _never_falls(w, bc, up, basis, c, details)
-    if chk.status == "fail":
+        if offset is not None:  # a static-offset side: its low sits at the offset
+            off = np.asarray(offset, dtype=float).reshape(-1)
+            details["offset_level"] = float(off[c] if off.size > 1 else off[0])
+        chk = _never_falls(w, bc, up, basis, c, details, details.get("joined"),
+                           (d.tap.label, details["offset_level"]) if offset is not None
+                           else None)
+    if chk.status == "fail" and chk.value is None and offset is not None:
+        v_lo = float(lim.fall_levels(float(seg_in.vdd[c]))[0])
+        _failed(chk, M.FALL_OFFSET_FIX.format(v_lo=_f(v_lo, "V")))
+    elif chk.status == "fail" and chk.value is None and join is not None:
+        _failed(chk, M.FALL_JOINED_NEVER_FIX.format(via=and_list(details["joined"]["via"])))
+    elif chk.status == "fail":
         _failed(chk, "a stronger sink, a larger pull-up (inside its window), less bus "
                      "capacitance, or a part that states its output fall time (t_of_max)")
+        if join is not None:
+            chk.fix += M.FALL_JOINED_FIX.format(via=and_list(details["joined"]["via"]))
+            chk.message += M.FALL_JOINED_FIX.format(via=and_list(details["joined"]["via"]))
+    if bc.soft is not None and bool(bc.soft[0]) and join is not None:
+        _soft_threshold(chk, bc, join)
     w.grp.add(chk)
     tf_min = lim.tf_min(float(seg_in.vdd[1]))
     if tf_min is None:
@@ -531,17 +559,63 @@ def _fall(w: Words, ln: LineInputs, far: list) -> None:
                  f"{up}: " + ", ".join(missing))
 
 
-def _never_falls(w: Words, bc, up: str, basis: str, c: int, details: dict) -> Check:
+def _never_falls(w: Words, bc, up: str, basis: str, c: int, details: dict,
+                 joined: dict | None = None, offset: tuple | None = None) -> Check:
     """The fall-time check where its bound is infinite: the driver's guaranteed sink
-    cannot pull the line through the fall's lower measuring level against the pull-up,
-    so the line never falls and has no fall time (failed, with the reason)."""
+    cannot pull the line through the fall's lower measuring level against the pull-up
+    (``joined``: against both segments' pull-ups, below the level where the pass
+    transistor conducts; ``offset``: a static-offset side's low sits at or above it), so
+    the line never falls and has no fall time (failed, with the reason)."""
     v_lo = float(w.lim.fall_levels(float(w.seg_in.vdd[c]))[0])
-    reason = (f"{up} never falls to {_f(v_lo, 'V')}, where its fall time ends: against the "
-              "pull-up the driver's guaranteed sink cannot pull the line that low")
+    if offset is not None:  # (driver, the level its static offset holds the line at)
+        reason = M.FALL_OFFSET_NEVER.format(up=up, v_lo=_f(v_lo, "V"), driver=offset[0],
+                                            level=_f(offset[1], "V"))
+    elif joined is None:
+        reason = (f"{up} never falls to {_f(v_lo, 'V')}, where its fall time ends: against "
+                  "the pull-up the driver's guaranteed sink cannot pull the line that low")
+    else:
+        reason = M.FALL_JOINED_NEVER.format(up=up, v_lo=_f(v_lo, "V"),
+                                            via=and_list(joined["via"]),
+                                            v_join=_f(joined["v_join"], "V"))
     chk = make(bc, w.lim.source_edges, f"{up} has no fall time: {reason} ({basis})",
                subject=up, details=details, reason=reason)
     chk.margin = None
     return chk
+
+
+def _soft_threshold(chk: Check, bc, join) -> None:
+    """A joined fall that fails only with the translator's soft threshold maximum (the
+    batch held it at a warning): it warns, saying so; ``details.value_basis`` names the
+    threshold's basis (its limit, the specification's tf, is firm)."""
+    th = join.link.dev.part.bridge.v_gs_th
+    basis = soft_basis(th)
+    chk.details = {**chk.details, "value_basis": basis}
+    if chk.status == "fail":
+        chk.status = "warn"
+        chk.message += M.FALL_JOINED_SOFT.format(
+            ref=join.link.dev.ref, vth=_f(float(th.value), "V"), typ=_f(float(th.typ), "V"),
+            basis="a class's typical value" if basis == "generic" else "an estimate")
+    if STATUSES.index(chk.status) != bc.status.item(0):
+        raise RuntimeError(f"open-drain wording of {chk.id} {chk.subject}: status "
+                           f"{chk.status}, the batch's {STATUSES[bc.status.item(0)]}")
+
+
+def joined_words(w: Words, join, c: int, cb: float, rp_far) -> tuple[str, dict]:
+    """The words and details of a line joined through pass transistors (an
+    :class:`.arith.Join` at corner ``c``; ``rp_far`` the far pull-up at the end the check
+    took)."""
+    links = join.links or [join.link]
+    segs = w.ctx.collected
+    v_join = np.asarray(join.v_join, dtype=float).reshape(-1)
+    v_join = float(v_join[c] if v_join.size > 1 else v_join[0])
+    vals = {"via": and_list([ln.dev.ref for ln in links]),
+            "far": and_list([segs[ln.other].segment.id for ln in links]),
+            "v_join": _f(v_join, "V"), "cb": _f(cb, "F"), "cb_far": _f(one(join.cb), "F"),
+            "rp_far": _f(one(rp_far), "Ω")}
+    details = {"via": [ln.dev.ref for ln in links],
+               "segments": [segs[ln.other].segment.id for ln in links],
+               "v_join": v_join, "cb_far": one(join.cb), "rp_far": one(rp_far)}
+    return M.EDGE_JOINED.format(**vals), details
 
 
 def fall_basis(lim, d, info: dict, c: int, cb: float) -> tuple[str, dict]:

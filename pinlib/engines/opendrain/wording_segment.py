@@ -315,6 +315,8 @@ def _domains(w: Words, taps: list) -> None:
         if chk.status == "fail":
             chk.fix = ("give the device its own rail (supply = \"...\" on the device) or choose "
                        "a part for this rail")
+            if t.dev.is_bridge and t.dev.part.bridge and t.dev.part.bridge.kind == "mosfet":
+                chk.fix = M.SUPPLY_RANGE_MOSFET_FIX.format(ref=t.dev.ref)
             chk.message += f"; {chk.fix}"
         grp.add(firm_or_soft(chk, bc, sup.min if low else sup.max, what="supply range"))
 
@@ -399,6 +401,8 @@ def _bridges(w: Words) -> None:
     for link in ctx.links[seg_in.index]:
         d = link.dev
         if link.kind == "mosfet":
+            if d.part_side == "a":
+                _gate_side(w, link)
             if seg.supply > ctx.collected[link.other].segment.supply:
                 continue  # the low side reports the gate drive
             _gate_drive(w, link)
@@ -465,6 +469,24 @@ def _facing(w: Words, offsets: list) -> None:
     chk.fix = M.FACING_FIX.format(kind=kind)
     chk.message += f"; {chk.fix}"
     w.grp.add(firm_or_soft(chk, bc, lx, vx, ly, vy, what="low_offset and VIL"))
+
+
+def _gate_side(w: Words, link) -> None:
+    """A pass-transistor translator's side a (gate, source, body) on the lower rail: on a
+    higher rail than side b its body diode conducts from side a to side b (a firm
+    failure, physics)."""
+    bc = w.take("bridge-gate-side")
+    d = link.dev
+    ok = bool(bc.status.item(0) == 0)
+    va = _f(w.seg_in.segment.supply, "V")
+    vb = _f(w.ctx.collected[link.other].segment.supply, "V")
+    chk = check_true("bridge-gate-side", ok, M.GATE_SIDE_SOURCE,
+                     (M.GATE_SIDE_OK if ok else M.GATE_SIDE_BAD).format(ref=d.ref, va=va, vb=vb),
+                     subject=d.ref)
+    if not ok:
+        chk.fix = M.GATE_SIDE_FIX.format(ref=d.ref, va=va, vb=vb)
+        chk.message += f"; {chk.fix}"
+    w.grp.add(chk)
 
 
 def _gate_drive(w: Words, link) -> None:

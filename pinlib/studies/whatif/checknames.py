@@ -8,7 +8,8 @@ from pinlib.engines import ppbatch as ppb
 from pinlib.engines.opendrain import batch as ob
 from pinlib.model.design import Bus, Design
 
-_PER_DEVICE = ("power-off", "fall-time-min", "bridge-gate-drive", "bridge-offset")
+_PER_DEVICE = ("power-off", "fall-time-min", "bridge-gate-drive", "bridge-gate-side",
+               "bridge-offset")
 
 
 def _check_names(bus: Bus, bb: ob.BusBatch, nominal) -> list[dict]:
