@@ -170,11 +170,11 @@ def test_the_exit_status_follows(tmp_path, monkeypatch, capsys):
                and "limit_basis" in c.details and not c.details.get("rule_of_thumb")
                and (c.margin is None or c.margin < 0))
     assert soft >= len(SOFT)
-    assert (f"warn ({soft} beyond a class's typical or an estimated limit), 0 fail on "
+    assert (f"warn ({soft} for want of a datasheet value), 0 fail on "
             "2 buses") in flat
     _checks(tmp_path, "datasheet")
     assert main(["check", str(tmp_path / "d.toml")]) == 1
-    assert "beyond a class's typical or an estimated limit" not in capsys.readouterr().out
+    assert "for want of a datasheet value" not in capsys.readouterr().out
 
 
 def test_the_monte_carlo_tables_agree_with_the_engine(tmp_path):
@@ -299,5 +299,5 @@ def test_the_summary_of_many_designs_counts_them_too(tmp_path, monkeypatch, caps
     other.write_text((tmp_path / "d.toml").read_text("utf-8"), "utf-8")
     assert main(["check", str(tmp_path / "d.toml"), str(other), "--jobs", "1"]) == 0
     out = capsys.readouterr().out
-    assert out.count("beyond a class's typical or an estimated limit), 0 fail") == 2
+    assert out.count("for want of a datasheet value), 0 fail") == 2
     assert max(len(line) for line in out.splitlines()) <= 80

@@ -413,8 +413,17 @@ def why_warns(check: Check) -> str | None:
     """Why ``check`` warns where its margin would fail: ``"rule"`` (a rule of thumb,
     :func:`rule_of_thumb`), or the basis of a limit no datasheet states (``"generic"``,
     ``"estimate"``: :func:`soften`); None for a check that can fail. [1]"""
-    details = check.details if isinstance(check.details, dict) else {}
-    return "rule" if details.get("rule_of_thumb") else details.get("limit_basis")
+    return _why(check.details)
+
+
+def _why(details) -> str | None:
+    """:func:`why_warns` read off a check's details: a rule of thumb, a soft limit's
+    basis, or that of a soft value the check was held at a warning on
+    (``soft_value``: a joined fall failing only at a class's threshold maximum)."""
+    details = details if isinstance(details, dict) else {}
+    if details.get("rule_of_thumb"):
+        return "rule"
+    return details.get("limit_basis") or details.get("soft_value")
 
 
 def warns_only(check: Check) -> bool:
@@ -435,8 +444,21 @@ def soft_beyond(status, margin, details) -> str | None:
     beyond = margin is None or (isinstance(margin, (int, float)) and margin < 0)
     if status != "warn" or not beyond:
         return None
-    details = details if isinstance(details, dict) else {}
-    return "rule" if details.get("rule_of_thumb") else details.get("limit_basis")
+    return _why(details)
+
+
+def held_on_value(details) -> bool:
+    """True where a soft value the check rests on, not its limit, held it at a warning
+    (``details.soft_value`` without a ``limit_basis`` or rule of thumb): its limit gets
+    no soft tag."""
+    d = details if isinstance(details, dict) else {}
+    return bool(d.get("soft_value")) and not d.get("limit_basis") and not d.get("rule_of_thumb")
+
+
+def soft_limit_beyond(status, margin, details) -> str | None:
+    """:func:`soft_beyond` where the soft basis is the limit's (the tag beside a limit);
+    None where a soft value held the check (:func:`held_on_value`)."""
+    return None if held_on_value(details) else soft_beyond(status, margin, details)
 
 
 #: Beside a limit that a check beyond it only warns against: no datasheet stands behind
@@ -468,7 +490,7 @@ def compared_cells(check_id, details) -> tuple[str, str] | None:
 
 def status_counts(checks) -> dict[str, int]:
     """``checks`` by status, ``{"pass": n, "warn": n, "fail": n}``, and ``"soft"``: the
-    warnings beyond a class's typical or an estimated limit (:func:`warns_beyond`),
+    warnings for want of a datasheet value (:func:`warns_beyond`),
     which would fail against a datasheet's. [1]"""
     out = {s: 0 for s in (*STATUSES, "soft")}
     for c in checks:

@@ -39,6 +39,7 @@ from pinlib.present.values import (
     search_bound_words,
     soft_tag,
     soft_words,
+    value_tag,
     with_fix,
 )
 from pinlib.present.visible import visible
@@ -71,8 +72,10 @@ def _against(c: Check) -> str:
     if isinstance(c.value, bool) or c.value is None:
         # a message says itself why it only warns; a reason does not
         why = warns_beyond(c)
-        return (c.reason + (REASON_TAGS[why] if why else "")) if c.reason else c.message
-    text = format_value(c.value, c.unit)
+        # held at a warning on a soft value, not a soft limit (the joined fall's VGS(th))
+        tags = VALUE_REASON_TAGS if why and (c.details or {}).get("soft_value") else REASON_TAGS
+        return (c.reason + (tags[why] if why else "")) if c.reason else c.message
+    text = format_value(c.value, c.unit) + value_tag(c)
     if not isinstance(c.limit, bool) and c.limit is not None:
         rel = _relation(c)
         text += f", limit {rel + ' ' if rel else ''}{format_value(c.limit, c.unit)}"
@@ -92,6 +95,9 @@ def _against(c: Check) -> str:
 REASON_TAGS = {"generic": "; a warning, the limit being a class's typical value",
                "estimate": "; a warning, the limit being an estimate",
                "rule": "; a warning, the limit being a rule of thumb"}
+#: After the reason of a check held at a warning because a value it rests on is soft.
+VALUE_REASON_TAGS = {"generic": "; a warning, resting on a class's typical value",
+                     "estimate": "; a warning, resting on an estimate"}
 
 
 def problem_line(bus: BusResult, where: str | None, signal: str | None, c: Check) -> str:

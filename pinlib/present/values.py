@@ -17,6 +17,7 @@ from pinlib.model.result import (
     Figure,
     compared_cells,
     figure_text,
+    held_on_value,
     status_counts,
     warns_beyond,
 )
@@ -105,8 +106,25 @@ def _text(name: str, f: Figure) -> str:
 
 def soft_tag(c: Check) -> str:
     """Beside the limit of a check beyond it that only warns, why (:data:`SOFT_TAGS`);
-    else nothing."""
-    return SOFT_TAGS.get(warns_beyond(c) or "", "")
+    else nothing (and nothing where a soft value, not the limit, holds it at a warning:
+    :func:`value_tag`)."""
+    return "" if _on_value(c) else SOFT_TAGS.get(warns_beyond(c) or "", "")
+
+
+#: Beside the value of a check held at a warning because a value it rests on is soft.
+VALUE_TAGS = {"generic": " (resting on a class's typical value)",
+              "estimate": " (resting on an estimate)"}
+
+
+def value_tag(c: Check) -> str:
+    """Beside the value of a check beyond its limit that only warns because a value it
+    rests on is soft (``details.soft_value``: a joined fall at a class's VGS(th)
+    maximum), why; else nothing."""
+    return VALUE_TAGS.get(warns_beyond(c) or "", "") if _on_value(c) else ""
+
+
+def _on_value(c: Check) -> bool:
+    return held_on_value(c.details)
 
 
 def check_cells(c: Check, *, answer: bool = False, why: bool = False) -> tuple[str, str]:
@@ -124,9 +142,11 @@ def check_cells(c: Check, *, answer: bool = False, why: bool = False) -> tuple[s
             return shown
         return ("yes" if c.value else "no") if answer else "", ""
     limit = "" if isinstance(c.limit, bool) else format_value(c.limit, c.unit)
-    if limit and why:  # why a check beyond it only warns
-        limit += soft_tag(c)
-    return format_value(c.value, c.unit), limit
+    value = format_value(c.value, c.unit)
+    if why:  # why a check beyond its limit only warns
+        limit += soft_tag(c) if limit else ""
+        value += value_tag(c) if c.value is not None else ""
+    return value, limit
 
 
 def limit_side(c: Check) -> str:
@@ -157,17 +177,17 @@ def with_fix(text: str, c: Check) -> str:
 
 
 def counts(result: DesignResult) -> dict[str, int]:
-    """Checks by status over the whole design, and the warnings beyond a class's typical
-    or an estimated limit (:func:`pinlib.model.result.status_counts`)."""
+    """Checks by status over the whole design, and the warnings for want of a datasheet
+    value (:func:`pinlib.model.result.status_counts`)."""
     return status_counts(c for b in result.results() for _, _, c in b.all_checks())
 
 
 def soft_words(n: dict) -> str:
     """After a count of warnings (of :func:`counts`): how many are beyond a limit no
-    datasheet states (``" (3 beyond a class's typical or an estimated limit)"``), else
+    datasheet states (``" (3 for want of a datasheet value)"``), else
     nothing."""
     soft = n.get("soft", 0)
-    return f" ({soft} beyond a class's typical or an estimated limit)" if soft else ""
+    return f" ({soft} for want of a datasheet value)" if soft else ""
 
 
 #: An SPI peripheral's flights as its budget checks' ``details`` hold them (see

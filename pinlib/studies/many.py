@@ -37,7 +37,7 @@ class DesignSummary:
     status : str
         ``pass``, ``warn``, ``fail``, or ``error`` (not loaded or not evaluated).
     soft : int
-        Of the warnings, those beyond a class's typical or an estimated limit
+        Of the warnings, those for want of a datasheet value
         (:func:`pinlib.model.result.warns_beyond`).
     counts : dict
         Checks by status (``pass``, ``warn``, ``fail``).

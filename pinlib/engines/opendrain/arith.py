@@ -9,16 +9,16 @@ translator.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
 
+from pinlib.core.valueclass import value_class
 from pinlib.physics import pullup as pu
 from pinlib.physics.pullup.joined import far_fall_time, joined_fall_time, joined_rise_time
 
 
-@dataclass
+@value_class
 class Join:
     """The line across a pass-transistor translator (or, merged, across several) while
     the transistor conducts (:mod:`pinlib.physics.pullup.joined`): its pull-up at both

@@ -592,6 +592,8 @@ def _soft_threshold(chk: Check, bc, join) -> None:
     chk.details = {**chk.details, "value_basis": basis}
     if chk.status == "fail":
         chk.status = "warn"
+        # why it only warns, as a soft limit's basis says it (model.result.why_warns)
+        chk.details["soft_value"] = basis
         chk.message += M.FALL_JOINED_SOFT.format(
             ref=join.link.dev.ref, vth=_f(float(th.value), "V"), typ=_f(float(th.typ), "V"),
             basis="a class's typical value" if basis == "generic" else "an estimate")

@@ -155,8 +155,8 @@ def notes_html(groups: list[Group], notes: list[str] | None = None) -> str:
 
 
 def status_line(result: BusResult, what: str) -> str:
-    """A bus's status and its checks' counts, with the warnings beyond a class's typical
-    or an estimated limit (:func:`pinlib.present.values.soft_words`)."""
+    """A bus's status and its checks' counts, with the warnings for want of a datasheet
+    value (:func:`pinlib.present.values.soft_words`)."""
     counts = status_counts(c for _, _, c in result.all_checks())
     return (f'<div style="{BLOCK};font-size:14px;margin:2px 0">{e(what)}: '
             f"{badge(result.status)} {counts['pass']} pass, {counts['warn']} warn"

@@ -19,7 +19,7 @@ from pinlib.model.result import (
     beyond_shown,
     compared_cells,
     signed_margin_text,
-    soft_beyond,
+    soft_limit_beyond,
 )
 from pinlib.studies.compare.figures import (
     CHOSEN_PARTS,
@@ -620,10 +620,11 @@ def _paired_checks(old_c: dict, new_c: dict) -> list[tuple[dict | None, dict | N
 
 
 def _soft(check: dict | None) -> str | None:
-    """Why a snapshot's check warns beyond its limit only, else None."""
+    """Why a snapshot's check warns beyond its limit only (the tag beside its limit),
+    else None."""
     if not check:
         return None
-    return soft_beyond(check.get("status"), check.get("margin"), check.get("details"))
+    return soft_limit_beyond(check.get("status"), check.get("margin"), check.get("details"))
 
 
 def _details(check: dict | None) -> dict | None:
