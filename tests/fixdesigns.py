@@ -14,7 +14,7 @@ from __future__ import annotations
 from pathlib import Path
 
 __all__ = ["PARTS", "write_design", "SPI_SLOW", "SPI_BRIDGE", "SPI_FAST", "GPIO_STRONG",
-           "GPIO_WEAK_TREE", "GPIO_OPEN_DRAIN"]
+           "GPIO_WEAK_TREE", "GPIO_OPEN_DRAIN", "host_to_5v_smbus"]
 
 PARTS = {
     "slow-adc": """\
@@ -245,4 +245,46 @@ devices = [
   { ref = "U1", part = "mcu-1v8", pin = "gpio_in" },
 ]
 lines.alarm = {line}
+"""
+
+
+def host_to_5v_smbus(*, host_side: str = "a", pack_side: str = "b", pack_own: str = "",
+                     extra: str | None = None, fan: bool = False,
+                     title: str = "Host to 5 V SMBus via MOSFET (invented test data)") -> str:
+    """A 3.3 V host reaching a 5 V SMBus segment through the library's two-MOSFET
+    translator Q1 (an audit's scenario, invented test data): ``host_side``/``pack_side``
+    the translator's side on each segment, ``pack_own`` more keys of its pack-side
+    placement (``', supply = "3.3 V"'``), ``extra`` the host segment's extra
+    capacitance, ``fan`` a fan controller U3 beside the gauge U2 on the pack."""
+    more = f'extra_capacitance = "{extra}"\n' if extra else ""
+    fan_row = '  { ref = "U3", part = "fan-controller-smbus" },\n' if fan else ""
+    return f"""format = "pinlib.design/1"
+title = "{title}"
+
+[[bus]]
+id = "smb"
+protocol = "smbus"
+mode = "100k"
+
+[[bus.segment]]
+id = "host-3v3"
+supply = "3.3 V"
+supply_tolerance = "5 %"
+pullup = "4.7 kΩ"
+trace = {{ length = "5 cm", capacitance = "1 pF/cm" }}
+{more}devices = [
+  {{ ref = "U1", part = "mcu-3v3", role = "controller" }},
+  {{ ref = "Q1", part = "level-translator-mosfet", side = "{host_side}" }},
+]
+
+[[bus.segment]]
+id = "pack-5v"
+supply = "5 V"
+supply_tolerance = "5 %"
+pullup = "2.2 kΩ"
+trace = {{ length = "25 cm", capacitance = "1 pF/cm" }}
+devices = [
+  {{ ref = "Q1", part = "level-translator-mosfet", side = "{pack_side}"{pack_own} }},
+  {{ ref = "U2", part = "battery-gauge-smbus" }},
+{fan_row}]
 """

@@ -9,46 +9,16 @@ import pytest
 from pinlib.core import messages as M
 from pinlib.engines import opendrain
 from pinlib.model.design import load_design
-
-#: A 3.3 V host and a 5 V SMBus segment joined by the library's two-MOSFET translator;
-#: SIDE_HOST / SIDE_PACK say which side sits where, OWN an extra key on the 5 V side's
-#: placement (invented test data, the audit's scenario)
-TRANSLATOR = """format = "pinlib.design/1"
-title = "MOSFET translator sides (invented test data)"
-
-[[bus]]
-id = "smb"
-protocol = "smbus"
-mode = "100k"
-
-[[bus.segment]]
-id = "host-3v3"
-supply = "3.3 V"
-supply_tolerance = "5 %"
-pullup = "4.7 kΩ"
-trace = { length = "5 cm", capacitance = "1 pF/cm" }
-devices = [
-  { ref = "U1", part = "mcu-3v3", role = "controller" },
-  { ref = "Q1", part = "level-translator-mosfet", side = "SIDE_HOST" },
-]
-
-[[bus.segment]]
-id = "pack-5v"
-supply = "5 V"
-supply_tolerance = "5 %"
-pullup = "2.2 kΩ"
-trace = { length = "25 cm", capacitance = "1 pF/cm" }
-devices = [
-  { ref = "Q1", part = "level-translator-mosfet", side = "SIDE_PACK"OWN },
-  { ref = "U2", part = "battery-gauge-smbus" },
-]
-"""
+from tests.fixdesigns import host_to_5v_smbus
 
 
 def _result(tmp_path, host: str, pack: str, own: str = ""):
+    # a 3.3 V host and a 5 V SMBus segment joined by the library's two-MOSFET
+    # translator, its sides placed as given (tests/fixdesigns.py, invented test data)
     path = tmp_path / "d.toml"
-    path.write_text(TRANSLATOR.replace("SIDE_HOST", host).replace("SIDE_PACK", pack)
-                    .replace("OWN", own), encoding="utf-8")
+    path.write_text(host_to_5v_smbus(host_side=host, pack_side=pack, pack_own=own,
+                                     title="MOSFET translator sides (invented test data)"),
+                    encoding="utf-8")
     d = load_design(path)
     return opendrain.evaluate_bus(d.buses[0], d)
 

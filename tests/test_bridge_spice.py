@@ -32,6 +32,7 @@ from spice import have_ngspice, run_deck
 from pinlib.engines import opendrain
 from pinlib.model.design import load_design
 from pinlib.physics.pullup.joined import far_fall_time, joined_fall_time, joined_rise_time
+from tests.fixdesigns import host_to_5v_smbus
 
 pytestmark = [pytest.mark.spice,
               pytest.mark.skipif(not have_ngspice(), reason="ngspice not on PATH")]
@@ -143,44 +144,11 @@ def test_joined_rise_is_the_rc_law_of_both_segments():
 
 # --------------------------------------------------------------------------- engine
 
-#: the audit's scenario, invented: a 3.3 V host with 150 pF extra reaching a 5 V SMBus
-#: segment through the library's two-MOSFET translator
-HEAVY_HOST = """format = "pinlib.design/1"
-title = "Host to 5 V SMBus via MOSFET (invented test data)"
-
-[[bus]]
-id = "smb"
-protocol = "smbus"
-mode = "100k"
-
-[[bus.segment]]
-id = "host-3v3"
-supply = "3.3 V"
-supply_tolerance = "5 %"
-pullup = "4.7 kΩ"
-trace = { length = "5 cm", capacitance = "1 pF/cm" }
-extra_capacitance = "EXTRA"
-devices = [
-  { ref = "U1", part = "mcu-3v3", role = "controller" },
-  { ref = "Q1", part = "level-translator-mosfet", side = "a" },
-]
-
-[[bus.segment]]
-id = "pack-5v"
-supply = "5 V"
-supply_tolerance = "5 %"
-pullup = "2.2 kΩ"
-trace = { length = "25 cm", capacitance = "1 pF/cm" }
-devices = [
-  { ref = "Q1", part = "level-translator-mosfet", side = "b" },
-  { ref = "U2", part = "battery-gauge-smbus" },
-]
-"""
-
-
 def _engine(tmp_path, extra: str):
+    # the audit's scenario, invented: a 3.3 V host with ``extra`` reaching a 5 V SMBus
+    # segment through the library's two-MOSFET translator (tests/fixdesigns.py)
     path = tmp_path / "d.toml"
-    path.write_text(HEAVY_HOST.replace("EXTRA", extra), encoding="utf-8")
+    path.write_text(host_to_5v_smbus(extra=extra), encoding="utf-8")
     d = load_design(path)
     bus = d.buses[0]
     lim, seg_ins = opendrain.collect(bus, d)

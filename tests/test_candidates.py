@@ -19,6 +19,7 @@ from pinlib.library.loader import Library, load_library
 from pinlib.library.values import Sourced
 from pinlib.model.design import load_design
 from pinlib.studies import candidates as cand
+from tests.fixdesigns import host_to_5v_smbus
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "workbooks" / "designs" / "demo-board.toml"
@@ -760,46 +761,14 @@ def test_a_misspelt_category_is_refused_as_parts_list_refuses_it(capsys):
     assert err.endswith("closest: memory") and "invalid choice" not in err
 
 
-BRIDGE_5V = """format = "pinlib.design/1"
-title = "host to a 5 V SMBus through a translator (invented)"
-
-[[bus]]
-id = "smb"
-protocol = "smbus"
-mode = "100k"
-
-[[bus.segment]]
-id = "host-3v3"
-supply = "3.3 V"
-supply_tolerance = "5 %"
-pullup = "4.7 kΩ"
-trace = { length = "5 cm", capacitance = "1 pF/cm" }
-devices = [
-  { ref = "U1", part = "mcu-3v3", role = "controller" },
-  { ref = "Q1", part = "level-translator-mosfet", side = "a" },
-]
-
-[[bus.segment]]
-id = "pack-5v"
-supply = "5 V"
-supply_tolerance = "5 %"
-pullup = "2.2 kΩ"
-trace = { length = "25 cm", capacitance = "1 pF/cm" }
-devices = [
-  { ref = "Q1", part = "level-translator-mosfet", side = "b" },
-  { ref = "U2", part = "battery-gauge-smbus" },
-  { ref = "U3", part = "fan-controller-smbus" },
-]
-"""
-
-
 def test_at_a_bridge_another_devices_rating_does_not_rank(tmp_path):
     # reproducer (an audit): at the translator Q1 every candidate ranked on U2's
     # abs_max against the 5.25 V rail, which no translator changes, a three-way tie.
     # As at any position (docs/formats/result.md), a device's own rating counts only
     # where that device is the candidate: U2's names the status it sets (status_by)
     path = tmp_path / "d.toml"
-    path.write_text(BRIDGE_5V, encoding="utf-8")
+    path.write_text(host_to_5v_smbus(
+        fan=True, title="host to a 5 V SMBus through a translator (invented)"), encoding="utf-8")
     r = cand.rank_candidates(load_design(path), "Q1")
     done = [c for c in r.candidates if c.status != "error"]
     assert len(done) >= 2

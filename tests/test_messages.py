@@ -5132,16 +5132,15 @@ def _bridge_texts(env, body: str, **kw) -> str:
 
 def _joined(env) -> str:
     # the audit's 3.3 V host reaching a 5 V SMBus through a MOSFET translator
-    # (tests/test_bridge_spice.py, invented test data)
-    from test_bridge_spice import HEAVY_HOST
-    return _bridge_texts(env, HEAVY_HOST.replace("EXTRA", "150 pF"))
+    # (tests/fixdesigns.py, invented test data)
+    from tests.fixdesigns import host_to_5v_smbus
+    return _bridge_texts(env, host_to_5v_smbus(extra="150 pF"))
 
 
 def _backwards(env) -> str:
-    # the translator fitted backwards, side a on 5 V (tests/test_bridge_physics.py)
-    from test_bridge_physics import TRANSLATOR
-    return _bridge_texts(env, TRANSLATOR.replace("SIDE_HOST", "b").replace("SIDE_PACK", "a")
-                         .replace("OWN", ""))
+    # the translator fitted backwards, side a on 5 V (tests/fixdesigns.py)
+    from tests.fixdesigns import host_to_5v_smbus
+    return _bridge_texts(env, host_to_5v_smbus(host_side="b", pack_side="a"))
 
 
 def _offset(env, offset: str = "0.72 V") -> str:

@@ -93,11 +93,8 @@ def joined_fall_time(rp, cb, vdd, rp_far, cb_far, v_far, v_join, v_ol, i_ol, v_h
         inside = (v_join > v_lo) & (v_join <= v_hi)
         t2 = np.where(inside, _hold(rp, vdd, rp_far, cb_far, v_far, v_join, v_ol, i_ol,
                                     r_series, v_far, v_join), 0.0)
-        r, v = _thevenin(rp, vdd, rp_far, v_far)
-        top = np.minimum(v_join, v_hi)
-        t3 = np.where(top > v_lo,
-                      _fall_time_bound(r, cb + cb_far, v, v_ol, i_ol, top, v_lo, r_series),
-                      0.0)
+        t3 = _below_join(rp, cb, vdd, rp_far, cb_far, v_far, v_join, v_ol, i_ol, v_hi, v_lo,
+                         r_series)
     return np.asarray(t1 + t2 + t3, dtype=float)
 
 
@@ -112,12 +109,20 @@ def far_fall_time(rp, cb, vdd, rp_far, cb_far, v_far, v_join, v_ol, i_ol, v_hi_f
         end2 = np.maximum(v_lo_far, v_join)
         t2 = np.where(start > end2, _hold(rp, vdd, rp_far, cb_far, v_far, v_join, v_ol, i_ol,
                                           r_series, start, end2), 0.0)
-        r, v = _thevenin(rp, vdd, rp_far, v_far)
-        top = np.minimum(v_join, v_hi_far)
-        t3 = np.where(top > v_lo_far,
-                      _fall_time_bound(r, cb + cb_far, v, v_ol, i_ol, top, v_lo_far, r_series),
-                      0.0)
+        t3 = _below_join(rp, cb, vdd, rp_far, cb_far, v_far, v_join, v_ol, i_ol, v_hi_far,
+                         v_lo_far, r_series)
     return np.asarray(t2 + t3, dtype=float)
+
+
+def _below_join(rp, cb, vdd, rp_far, cb_far, v_far, v_join, v_ol, i_ol, v_hi, v_lo,
+                r_series):
+    """Phase 3 of a joined fall: both lines as one, both capacitances against both
+    pull-ups (their Thévenin equivalent), from ``min(v_join, v_hi)`` down to ``v_lo``;
+    0 where that window is empty. [s]"""
+    r, v = _thevenin(rp, vdd, rp_far, v_far)
+    top = np.minimum(v_join, v_hi)
+    return np.where(top > v_lo,
+                    _fall_time_bound(r, cb + cb_far, v, v_ol, i_ol, top, v_lo, r_series), 0.0)
 
 
 def joined_rise_time(rp, cb, vdd, rp_far, cb_far, v_far, v_join, v_lo, v_hi):
