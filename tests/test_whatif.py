@@ -1207,3 +1207,23 @@ def test_a_check_that_warns_among_the_more_is_named_with_its_count():
     assert "… 2 more that vary, warn or fail" in flat
     assert "of those, 2 warn on some boards (boards that warn): b C99 (4), b C98 (3)" in flat
     assert "1 other check passes on every board, never warns and never varies" in flat
+
+
+def test_a_row_held_at_a_warning_by_a_soft_value_says_so():
+    # a joined fall beyond tf only at a class's VGS(th) maximum warns (its limit is
+    # UM10204's): the row said "(a class's typical limit)" as for a class's limit
+    # (invented rows)
+    from pinlib.studies.whatif.mcresult import McCheck, McResult
+    from pinlib.studies.whatif.yields import Yield
+
+    def mc(name, on_value):
+        return McCheck(f"b {name}", "b", "b", None, name, "s", "", "warn", -0.2,
+                       Yield(4, 4, (0.5, 1.0), 4), margins=np.full(4, -0.2), warns=4,
+                       warns_only="generic", on_value=on_value)
+
+    text = McResult("d", 4, 1, "uniform", [], [mc("fall", True), mc("vih", False)], {}, None,
+                    np.zeros((4, 0))).format_text()
+    rows = {ln.split()[1]: " ".join(ln.split()) for ln in text.splitlines()
+            if ln.startswith("    b ")}
+    assert "warns on 4 (resting on a class's typical value)" in rows["Fall"]
+    assert "warns on 4 (a class's typical limit)" in rows["VIH"]

@@ -75,6 +75,10 @@ class McCheck:
         Why it warns where its margin would fail, as the engine's check says: ``"rule"``
         (a rule of thumb), ``"generic"`` or ``"estimate"`` (its limit's basis,
         :func:`pinlib.model.result.soften`); None for a check that can fail. [1]
+    on_value : bool
+        True where that basis is a value the check rests on, not its limit's
+        (:func:`pinlib.model.result.held_on_value`: a joined fall at a class's VGS(th)
+        maximum). [1]
     """
 
     name: str
@@ -101,6 +105,7 @@ class McCheck:
     histogram: MarginHistogram | None = None
     margin_unit: str | None = None
     warns_only: str | None = None
+    on_value: bool = False
 
     @property
     def label(self) -> str:
@@ -249,7 +254,8 @@ class McResult:
                 # margin of -89 % says so, or it reads as a contradiction
                 # beyond its limit on some board, why that only warns
                 lowest = _low(c)
-                why = (_ONLY_WARNS.get(c.warns_only, "") if lowest is not None
+                tags = _ONLY_WARNS_VALUE if c.on_value else _ONLY_WARNS
+                why = (tags.get(c.warns_only, "") if lowest is not None
                        and lowest < 0 else "")
                 warned = f"warns on {c.warns}{why}; " if c.warns else ""
                 if c.absent:  # counted as passing: the text says the check is not there
@@ -287,6 +293,9 @@ class McResult:
 #: After a count of boards that warn: why the check warns and never fails there.
 _ONLY_WARNS = {"rule": " (a rule of thumb)", "generic": " (a class's typical limit)",
                "estimate": " (an estimated limit)"}
+#: The same where a soft value, not the limit, holds the check at a warning.
+_ONLY_WARNS_VALUE = {"generic": " (resting on a class's typical value)",
+                     "estimate": " (resting on an estimate)"}
 
 
 def _low(c: McCheck) -> float | None:

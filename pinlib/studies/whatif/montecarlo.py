@@ -14,7 +14,7 @@ from pinlib.engines import ppbatch as ppb
 from pinlib.engines import pptable
 from pinlib.engines.opendrain import batch as ob
 from pinlib.model.design import Design
-from pinlib.model.result import why_warns
+from pinlib.model.result import held_on_value, why_warns
 from pinlib.studies.whatif.checknames import _names, _not_sampled
 from pinlib.studies.whatif.couplingmc import CouplingRun, coupling_parameters
 from pinlib.studies.whatif.mcresult import McCheck, McResult
@@ -267,7 +267,8 @@ def _bus_checks(bus_id: str, st: _Tally, fits: list, n: int, kept: int) -> list[
             margin_unit=ec.margin_unit if ec is not None else None,
             low=st.extreme(j, 0), high=st.extreme(j, 1), worst_board=st.worst_board(j),
             sampled=kept, histogram=st.hist[j],
-            warns_only=why_warns(ec) if ec is not None else None))
+            warns_only=why_warns(ec) if ec is not None else None,
+            on_value=ec is not None and held_on_value(ec.details)))
     return checks
 
 
