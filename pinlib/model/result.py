@@ -38,6 +38,9 @@ __all__ = [
     "soft_limit",
     "soft_basis",
     "soften",
+    "held_on_value",
+    "SOFT_TAGS",
+    "VALUE_TAGS",
     "warns_only",
     "warns_beyond",
     "why_warns",
@@ -466,6 +469,10 @@ def soft_limit_beyond(status, margin, details) -> str | None:
 #: :func:`warns_beyond` says which.
 SOFT_TAGS = {"generic": " (a class's typical value)", "estimate": " (an estimate)",
              "rule": " (a rule of thumb)"}
+#: Beside the value (or after the count of boards that warn) of a check a soft value it
+#: rests on, not its limit, holds at a warning (:func:`held_on_value`), by that basis.
+VALUE_TAGS = {"generic": " (resting on a class's typical value)",
+              "estimate": " (resting on an estimate)"}
 
 
 def _modes_text(modes) -> str:

@@ -26,6 +26,7 @@ from pinlib.model.result import (
     Check,
     DesignResult,
     figure_text,
+    held_on_value,
     margin_text,
     warns_beyond,
     worst_order,
@@ -73,7 +74,7 @@ def _against(c: Check) -> str:
         # a message says itself why it only warns; a reason does not
         why = warns_beyond(c)
         # held at a warning on a soft value, not a soft limit (the joined fall's VGS(th))
-        tags = VALUE_REASON_TAGS if why and (c.details or {}).get("soft_value") else REASON_TAGS
+        tags = VALUE_REASON_TAGS if held_on_value(c.details) else REASON_TAGS
         return (c.reason + (tags[why] if why else "")) if c.reason else c.message
     text = format_value(c.value, c.unit) + value_tag(c)
     if not isinstance(c.limit, bool) and c.limit is not None:

@@ -11,6 +11,7 @@ from pinlib.core.labels import figure_label, shown_figures
 from pinlib.core.quantity import format_value
 from pinlib.model.result import (
     SOFT_TAGS,
+    VALUE_TAGS,
     BusResult,
     Check,
     DesignResult,
@@ -108,23 +109,14 @@ def soft_tag(c: Check) -> str:
     """Beside the limit of a check beyond it that only warns, why (:data:`SOFT_TAGS`);
     else nothing (and nothing where a soft value, not the limit, holds it at a warning:
     :func:`value_tag`)."""
-    return "" if _on_value(c) else SOFT_TAGS.get(warns_beyond(c) or "", "")
-
-
-#: Beside the value of a check held at a warning because a value it rests on is soft.
-VALUE_TAGS = {"generic": " (resting on a class's typical value)",
-              "estimate": " (resting on an estimate)"}
+    return "" if held_on_value(c.details) else SOFT_TAGS.get(warns_beyond(c) or "", "")
 
 
 def value_tag(c: Check) -> str:
     """Beside the value of a check beyond its limit that only warns because a value it
     rests on is soft (``details.soft_value``: a joined fall at a class's VGS(th)
     maximum), why; else nothing."""
-    return VALUE_TAGS.get(warns_beyond(c) or "", "") if _on_value(c) else ""
-
-
-def _on_value(c: Check) -> bool:
-    return held_on_value(c.details)
+    return VALUE_TAGS.get(warns_beyond(c) or "", "") if held_on_value(c.details) else ""
 
 
 def check_cells(c: Check, *, answer: bool = False, why: bool = False) -> tuple[str, str]:
@@ -183,9 +175,9 @@ def counts(result: DesignResult) -> dict[str, int]:
 
 
 def soft_words(n: dict) -> str:
-    """After a count of warnings (of :func:`counts`): how many are beyond a limit no
-    datasheet states (``" (3 for want of a datasheet value)"``), else
-    nothing."""
+    """After a count of warnings (of :func:`counts`): how many only warn for want of a
+    datasheet value, on their limit or on a value they rest on (``" (3 for want of a
+    datasheet value)"``), else nothing."""
     soft = n.get("soft", 0)
     return f" ({soft} for want of a datasheet value)" if soft else ""
 

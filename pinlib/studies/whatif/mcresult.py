@@ -10,7 +10,7 @@ import numpy as np
 from pinlib.core.labels import counted, plural_s, sampled_check_label
 from pinlib.core.quantity import format_si
 from pinlib.core.valueclass import value_class
-from pinlib.model.result import json_number, margin_order, signed_margin_text
+from pinlib.model.result import VALUE_TAGS, json_number, margin_order, signed_margin_text
 from pinlib.studies.whatif.sensitivity import SENSITIVITY_FLOOR, beyond_rounding
 from pinlib.studies.whatif.tally import MarginHistogram
 from pinlib.studies.whatif.tolerances import Parameter
@@ -254,7 +254,7 @@ class McResult:
                 # margin of -89 % says so, or it reads as a contradiction
                 # beyond its limit on some board, why that only warns
                 lowest = _low(c)
-                tags = _ONLY_WARNS_VALUE if c.on_value else _ONLY_WARNS
+                tags = VALUE_TAGS if c.on_value else _ONLY_WARNS
                 why = (tags.get(c.warns_only, "") if lowest is not None
                        and lowest < 0 else "")
                 warned = f"warns on {c.warns}{why}; " if c.warns else ""
@@ -293,9 +293,6 @@ class McResult:
 #: After a count of boards that warn: why the check warns and never fails there.
 _ONLY_WARNS = {"rule": " (a rule of thumb)", "generic": " (a class's typical limit)",
                "estimate": " (an estimated limit)"}
-#: The same where a soft value, not the limit, holds the check at a warning.
-_ONLY_WARNS_VALUE = {"generic": " (resting on a class's typical value)",
-                     "estimate": " (resting on an estimate)"}
 
 
 def _low(c: McCheck) -> float | None:

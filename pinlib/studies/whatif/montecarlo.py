@@ -21,7 +21,7 @@ from pinlib.studies.whatif.mcresult import McCheck, McResult
 from pinlib.studies.whatif.sensitivity import _sensitivities
 from pinlib.studies.whatif.tally import _Tally
 from pinlib.studies.whatif.tolerances import _FLOOR, Sampled, _collected, _nominal, draw, parameters
-from pinlib.studies.whatif.yields import Yield, wilson_interval
+from pinlib.studies.whatif.yields import Yield
 
 #: Samples evaluated per numpy pass (fixed, so that a seeded run does not depend on
 #: whether a progress bar is shown; board i's draws do not depend on it either).  Smaller
@@ -124,10 +124,9 @@ def monte_carlo(design: Design, n: int, *, seed: int | None = None, progress=Non
         if st is not None:
             fits = _sensitivities(uc_kept, st.margin, cparams)
             checks += _bus_checks(c.id, st, fits, n, kept)
-            buses[c.id] = _yield(st, n)
+            buses[c.id] = Yield.of(st.bus_ok, n, st.bus_warned)
     stored = run.stores or crun.stores
-    board = (Yield(run.board_ok, n, wilson_interval(run.board_ok, n), run.board_warned)
-             if stored else None)
+    board = Yield.of(run.board_ok, n, run.board_warned) if stored else None
     return McResult(design.title, n, int(ss.entropy), design.distribution, params + cparams,
                     checks, buses, board, np.hstack([u_kept, uc_kept]), _run_notes(run, n))
 
@@ -242,13 +241,8 @@ def _checks_and_yields(run: _Run, u_kept: np.ndarray, n: int) -> tuple[list, dic
             continue
         fits = _sensitivities(u_kept, st.margin, run.params)
         checks += _bus_checks(bus.id, st, fits, n, run.kept)
-        buses[bus.id] = _yield(st, n)
+        buses[bus.id] = Yield.of(st.bus_ok, n, st.bus_warned)
     return checks, buses
-
-
-def _yield(st: _Tally, n: int) -> Yield:
-    """The boards on which every check a tally counts passes, of ``n``."""
-    return Yield(st.bus_ok, n, wilson_interval(st.bus_ok, n), st.bus_warned)
 
 
 def _bus_checks(bus_id: str, st: _Tally, fits: list, n: int, kept: int) -> list[McCheck]:
@@ -262,7 +256,7 @@ def _bus_checks(bus_id: str, st: _Tally, fits: list, n: int, kept: int) -> list[
             name["name"], bus_id, name["segment"], signal, cid, unit,
             ec.source if ec is not None else "", ec.status if ec is not None else None,
             ec.margin if ec is not None else None,
-            Yield(passes, n, wilson_interval(passes, n), int(st.warns[j])), mg, val, sens, r2,
+            Yield.of(passes, n, int(st.warns[j])), mg, val, sens, r2,
             warns=int(st.warns[j]), fails=int(st.fails[j]), absent=int(st.absent[j]),
             margin_unit=ec.margin_unit if ec is not None else None,
             low=st.extreme(j, 0), high=st.extreme(j, 1), worst_board=st.worst_board(j),

@@ -78,6 +78,12 @@ class Yield:
     interval: tuple[float, float]
     warned: int = 0
 
+    @classmethod
+    def of(cls, passes: int, n: int, warned: int = 0) -> Yield:
+        """``passes`` of ``n`` boards with their Wilson interval
+        (:func:`wilson_interval`), ``warned`` of them warning."""
+        return cls(passes, n, wilson_interval(passes, n), warned)
+
     @property
     def fraction(self) -> float:
         return self.passes / self.n
