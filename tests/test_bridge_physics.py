@@ -240,6 +240,8 @@ def _sensor_fall(tmp_path, datasheet: bool):
 def test_a_joined_fall_failing_only_at_a_class_threshold_warns(tmp_path):
     chk = _sensor_fall(tmp_path, datasheet=False)
     assert chk.status == "warn" and chk.value is None and "U9 via Q1" in chk.message
+    # derived: side a's rail at its minimum, 1.8 V − 5 % = 1.71 V, less the class's
+    # VGS(th) maximum 1.5 V (the built-in class's value, typical of its kind)
     assert "Q1 conducts only below 210 mV" in chk.reason
     assert chk.details["value_basis"] == "generic"
     assert M.FALL_JOINED_SOFT.format(ref="Q1", vth="1.5 V", basis="a class's typical value",
